@@ -1,0 +1,113 @@
+package fit
+
+import (
+	"fmt"
+	"math"
+)
+
+// Baseline is the adjacent nonparallel logit shown in baseline-category
+// (multinomial logit) form: for every category j other than Ref,
+// ln[P(y=j)/P(y=Ref)] = Cut[j] + x'Coef[j] (note the plus sign).
+type Baseline struct {
+	Ref        int      // reference category (0-based)
+	Categories []int    // the non-reference categories, in order
+	Names      []string // "cut1".., "var[1]".. indexed by position in Categories
+	Estimates  []float64
+	StdErrors  []float64
+	Cov        []float64
+}
+
+// Baseline converts an adjacent nonparallel logit fit to baseline-category
+// form against reference category ref (0-based), with delta-method (here
+// exact, the map being linear) standard errors.
+func (r *Result) Baseline(ref int) (*Baseline, error) {
+	if r.Model.Comparison != Adjacent || r.Model.Link != Logit || r.Model.Level() != "nonparallel" {
+		return nil, fmt.Errorf("the baseline-category form exists for the adjacent nonparallel logit only, not %s", r.Name)
+	}
+	if !r.OK() {
+		return nil, fmt.Errorf("%s has no finite estimates", r.Name)
+	}
+	J, K := r.J, len(r.Predictors)
+	if ref < 0 || ref >= J {
+		return nil, fmt.Errorf("reference category %d outside 1..%d", ref+1, J)
+	}
+	q := J - 1
+	P := len(r.Estimates)
+	// alpha_j = -sum_{k<j} tau_k and c_j = sum_{k<j} b_k, relative to
+	// category 0; then subtract the reference.
+	ly, _ := newLayout(r.Model, J, r.Predictors)
+	var cats []int
+	for j := 0; j < J; j++ {
+		if j != ref {
+			cats = append(cats, j)
+		}
+	}
+	out := &Baseline{Ref: ref, Categories: cats}
+	nOut := q * (K + 1)
+	A := make([]float64, nOut*P)
+	row := 0
+	// cutpoints
+	for i, j := range cats {
+		out.Names = append(out.Names, fmt.Sprintf("cut%d", i+1))
+		for k := 0; k < j; k++ {
+			A[row*P+ly.cut[k]] -= 1
+		}
+		for k := 0; k < ref; k++ {
+			A[row*P+ly.cut[k]] += 1
+		}
+		row++
+	}
+	for p, name := range r.Predictors {
+		s := ly.slope[p]
+		for i, j := range cats {
+			out.Names = append(out.Names, fmt.Sprintf("%s[%d]", name, i+1))
+			for k := 0; k < j; k++ {
+				A[row*P+s+k] += 1
+			}
+			for k := 0; k < ref; k++ {
+				A[row*P+s+k] -= 1
+			}
+			row++
+		}
+	}
+	out.Estimates, out.Cov = linearMap(A, nOut, r.Estimates, r.Cov)
+	out.StdErrors = make([]float64, nOut)
+	for i := range out.StdErrors {
+		out.StdErrors[i] = math.Sqrt(out.Cov[i*nOut+i])
+	}
+	return out, nil
+}
+
+// linearMap returns A theta and A V A' for an n x P matrix A.
+func linearMap(A []float64, n int, theta, V []float64) ([]float64, []float64) {
+	P := len(theta)
+	est := make([]float64, n)
+	for i := 0; i < n; i++ {
+		for j := 0; j < P; j++ {
+			est[i] += A[i*P+j] * theta[j]
+		}
+	}
+	AV := make([]float64, n*P)
+	for i := 0; i < n; i++ {
+		for k := 0; k < P; k++ {
+			a := A[i*P+k]
+			if a == 0 {
+				continue
+			}
+			for j := 0; j < P; j++ {
+				AV[i*P+j] += a * V[k*P+j]
+			}
+		}
+	}
+	cov := make([]float64, n*n)
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			s := 0.0
+			for k := 0; k < P; k++ {
+				s += AV[i*P+k] * A[j*P+k]
+			}
+			cov[i*n+j] = s
+		}
+	}
+	return est, cov
+}

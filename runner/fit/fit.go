@@ -1,0 +1,327 @@
+package fit
+
+import (
+	"errors"
+	"fmt"
+	"math"
+)
+
+// Data is the array-level input of a fit.
+type Data struct {
+	Y          []int     // category index 0..J-1 per row
+	J          int       // number of categories
+	X          []float64 // row-major N x K, no intercept column
+	Predictors []string  // K names
+	Levels     []string  // J category labels (optional; default "1".."J")
+	Weights    []float64 // frequency weights (nil: all 1)
+	Offset     []float64 // added to x'b in every equation (nil: none)
+}
+
+// N is the number of rows.
+func (d *Data) N() int { return len(d.Y) }
+
+// Covariance types.
+const (
+	CovOIM = "oim" // observed information
+	CovEIM = "eim" // expected information
+)
+
+// Options tunes a fit. The zero value is the default.
+type Options struct {
+	Covariance string    // "oim" (default) or "eim"
+	MaxIter    int       // Newton iterations (default 200)
+	Workers    int       // goroutines over row blocks (default GOMAXPROCS)
+	Start      []float64 // starting values in parameter order (optional)
+	Scoring    bool      // Fisher scoring instead of Newton-Raphson
+}
+
+// Status of a fit.
+type Status string
+
+// The statuses a fit can end with.
+const (
+	StatusOK              Status = "ok"
+	StatusNegativeProbs   Status = "ok_negative_probabilities"
+	StatusNoFiniteMaximum Status = "no_finite_maximum"
+	StatusNotConverged    Status = "not_converged"
+)
+
+// Result is a frozen fit.
+type Result struct {
+	Model      Model
+	Name       string
+	Predictors []string
+	Levels     []string
+	J          int
+
+	Status     Status
+	Message    string
+	Converged  bool
+	Iterations int
+	Reason     string // why the Newton engine stopped
+
+	LogLik  float64 // NaN unless the maximum is finite
+	NObs    float64
+	NRows   int
+	NParams int
+	AIC     float64
+	BIC     float64
+
+	ParamNames []string
+	Estimates  []float64
+	StdErrors  []float64
+	Cov        []float64 // NParams x NParams, row-major
+	CovType    string
+
+	Cutpoints []float64   // tau_1..tau_{J-1}
+	Effects   [][]float64 // [m][k]: slope of predictor k in equation m
+	Phi       [][]float64 // per constraint group: phi_1..phi_{J-1} (phi_1 = 1)
+	PhiGroups []string
+
+	MaxAbsScore   float64
+	Decrement     float64
+	Condition     float64 // of the information scaled to unit diagonal
+	MinFittedProb float64 // smallest fitted probability of an observed category
+	NegativeRows  int     // rows with a negative predicted category probability
+	Separation    *Separation
+	SupLogLik     float64 // log-likelihood reached when there is no finite maximum
+}
+
+// Separation describes a fit with no finite maximum.
+type Separation struct {
+	Parameters []string // parameters that diverge
+	Predictors []string
+	Boundaries []string // "lo|hi" category boundaries involved
+	Evidence   []string // data facts such as `category "1" occurs only at temp = 0`
+}
+
+// Estimate returns the estimate named name.
+func (r *Result) Estimate(name string) (float64, bool) {
+	for i, n := range r.ParamNames {
+		if n == name {
+			return r.Estimates[i], true
+		}
+	}
+	return 0, false
+}
+
+// OK reports whether the fit has a finite maximum and converged.
+func (r *Result) OK() bool {
+	return r.Status == StatusOK || r.Status == StatusNegativeProbs
+}
+
+// InputError is bad input to a fit, with a message for the user.
+type InputError struct{ Msg string }
+
+func (e *InputError) Error() string { return e.Msg }
+
+func inputErr(format string, a ...any) error { return &InputError{fmt.Sprintf(format, a...)} }
+
+// Fit estimates model m on data d.
+func Fit(d *Data, m Model, opt Options) (*Result, error) {
+	if err := d.validate(); err != nil {
+		return nil, err
+	}
+	ly, err := newLayout(m, d.J, d.Predictors)
+	if err != nil {
+		return nil, &InputError{err.Error()}
+	}
+	nobs := d.nobs()
+	if float64(len(ly.params)) > nobs {
+		return nil, inputErr("model %s has %d parameters but only %g observations", m.Name(), len(ly.params), nobs)
+	}
+	if err := d.checkRank(m); err != nil {
+		return nil, err
+	}
+	if opt.MaxIter <= 0 {
+		opt.MaxIter = 200
+	}
+	des := d.design()
+	pr := newProblem(des, m, ly, opt.Workers)
+	start := opt.Start
+	if start == nil {
+		start, err = startValues(d, m, ly, opt)
+		if err != nil {
+			return nil, err
+		}
+	} else if len(start) != len(ly.params) {
+		return nil, inputErr("start has %d values for %d parameters", len(start), len(ly.params))
+	}
+	st := pr.newton(start, opt.MaxIter, opt.Scoring)
+	return finish(d, m, ly, pr, st, opt), nil
+}
+
+func (d *Data) nobs() float64 {
+	if d.Weights == nil {
+		return float64(len(d.Y))
+	}
+	s := 0.0
+	for _, w := range d.Weights {
+		s += w
+	}
+	return s
+}
+
+func (d *Data) levels() []string {
+	if len(d.Levels) == d.J {
+		return d.Levels
+	}
+	out := make([]string, d.J)
+	for i := range out {
+		out[i] = fmt.Sprint(i + 1)
+	}
+	return out
+}
+
+func (d *Data) design() *design {
+	return &design{n: len(d.Y), K: len(d.Predictors), x: d.X, y: d.Y, w: d.Weights, off: d.Offset}
+}
+
+func (d *Data) validate() error {
+	n, K := len(d.Y), len(d.Predictors)
+	if d.J < 2 {
+		return inputErr("the outcome needs at least 2 categories, got %d", d.J)
+	}
+	if n == 0 {
+		return inputErr("no observations")
+	}
+	if len(d.X) != n*K {
+		return inputErr("X has %d values, want %d rows x %d predictors", len(d.X), n, K)
+	}
+	if d.Levels != nil && len(d.Levels) != d.J {
+		return inputErr("%d category labels for %d categories", len(d.Levels), d.J)
+	}
+	if d.Weights != nil && len(d.Weights) != n {
+		return inputErr("%d weights for %d rows", len(d.Weights), n)
+	}
+	if d.Offset != nil && len(d.Offset) != n {
+		return inputErr("%d offsets for %d rows", len(d.Offset), n)
+	}
+	counts := make([]float64, d.J)
+	for i, y := range d.Y {
+		if y < 0 || y >= d.J {
+			return inputErr("row %d: category index %d outside 0..%d", i+1, y, d.J-1)
+		}
+		w := 1.0
+		if d.Weights != nil {
+			w = d.Weights[i]
+			if !(w >= 0) || math.IsInf(w, 0) {
+				return inputErr("row %d: weight %g is not a finite non-negative number", i+1, w)
+			}
+		}
+		counts[y] += w
+		if d.Offset != nil && (math.IsNaN(d.Offset[i]) || math.IsInf(d.Offset[i], 0)) {
+			return inputErr("row %d: offset %g is not finite", i+1, d.Offset[i])
+		}
+	}
+	for i, v := range d.X {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return inputErr("row %d: predictor %q has the non-finite value %g", i/K+1, d.Predictors[i%K], v)
+		}
+	}
+	lv := d.levels()
+	for c, n := range counts {
+		if n == 0 {
+			return inputErr("category %q of the outcome is never observed: drop it from the category list or merge it with a neighbour", lv[c])
+		}
+	}
+	seen := map[string]bool{}
+	for _, p := range d.Predictors {
+		if seen[p] {
+			return inputErr("predictor %q is listed twice", p)
+		}
+		seen[p] = true
+	}
+	return nil
+}
+
+// startValues: cutpoints from the marginal distribution with zero slopes;
+// for constrained models gamma from the parallel fit and phi = 1.
+func startValues(d *Data, m Model, ly *layout, opt Options) ([]float64, error) {
+	theta := make([]float64, len(ly.params))
+	copy(theta, marginalCutpoints(d, m))
+	if len(constrainedPredictors(m)) == 0 {
+		return theta, nil
+	}
+	par := m
+	par.Effects = make([]Effect, len(m.Effects))
+	for k, e := range m.Effects {
+		if e == Nonparallel {
+			par.Effects[k] = Nonparallel
+		}
+	}
+	o := opt
+	o.Start = nil
+	r, err := Fit(d, par, o)
+	if err != nil {
+		return nil, err
+	}
+	for j := 0; j < d.J-1; j++ {
+		theta[ly.cut[j]] = r.Cutpoints[j]
+	}
+	for k, e := range m.Effects {
+		s := ly.slope[k]
+		switch e {
+		case Parallel, Constrained:
+			theta[s] = r.Effects[0][k]
+		case Nonparallel:
+			for j := 0; j < d.J-1; j++ {
+				theta[s+j] = r.Effects[j][k]
+			}
+		}
+	}
+	for dg := range ly.groups {
+		for j := 1; j < d.J-1; j++ {
+			theta[ly.phiIndex[dg][j]] = 1
+		}
+	}
+	return theta, nil
+}
+
+// marginalCutpoints gives the cutpoints that reproduce the marginal
+// category distribution when every slope is zero.
+func marginalCutpoints(d *Data, m Model) []float64 {
+	J := d.J
+	p := make([]float64, J)
+	tot := 0.0
+	for i, y := range d.Y {
+		w := 1.0
+		if d.Weights != nil {
+			w = d.Weights[i]
+		}
+		p[y] += w
+		tot += w
+	}
+	for i := range p {
+		p[i] /= tot
+	}
+	tau := make([]float64, J-1)
+	for j := 0; j < J-1; j++ {
+		var pr float64
+		switch {
+		case m.Comparison == Cumulative:
+			for c := 0; c <= j; c++ {
+				pr += p[c]
+			}
+		case m.Comparison == Stage && !m.Backward:
+			rest := 0.0
+			for c := j; c < J; c++ {
+				rest += p[c]
+			}
+			pr = p[j] / rest
+		case m.Comparison == Stage:
+			below := 0.0
+			for c := 0; c <= j+1; c++ {
+				below += p[c]
+			}
+			pr = (below - p[j+1]) / below
+		default:
+			pr = p[j] / (p[j] + p[j+1])
+		}
+		pr = math.Min(math.Max(pr, 1e-6), 1-1e-6)
+		tau[j] = m.Link.Quantile(pr)
+	}
+	return tau
+}
+
+var errSingular = errors.New("singular information")

@@ -1,0 +1,267 @@
+package fit
+
+import (
+	"fmt"
+	"strings"
+)
+
+// Effect is the effect structure of one predictor across the J-1 equations.
+type Effect int
+
+// The effect structures.
+const (
+	Parallel    Effect = iota // b_mk = b_k
+	Nonparallel               // b_mk free
+	Constrained               // b_mk = phi_m * g_k, phi_1 = 1
+)
+
+var effectNames = []string{"parallel", "nonparallel", "constrained"}
+
+func (e Effect) String() string {
+	if int(e) < len(effectNames) {
+		return effectNames[e]
+	}
+	return fmt.Sprintf("effect(%d)", int(e))
+}
+
+// Model describes one model of the typology, independent of the data.
+type Model struct {
+	Comparison Comparison
+	Backward   bool // stage comparison only: P(y <= m | y <= m+1)
+	Link       Link
+	// Effects gives the structure of each predictor, in predictor order.
+	Effects []Effect
+	// Groups gives, for each constrained predictor, the index of its
+	// constraint group in GroupNames (ignored for other predictors). With a
+	// nil Groups every constrained predictor is in group 0.
+	Groups     []int
+	GroupNames []string
+}
+
+// Name is a short identifier such as "cumulative/partial/logit".
+func (m Model) Name() string {
+	return fmt.Sprintf("%s/%s/%s", m.ComparisonName(), m.Level(), m.Link)
+}
+
+// ComparisonName includes the stage direction.
+func (m Model) ComparisonName() string {
+	if m.Comparison == Stage && m.Backward {
+		return "stage_backward"
+	}
+	return m.Comparison.String()
+}
+
+// Level names the column of the typology the model belongs to.
+func (m Model) Level() string {
+	var np, cons, par int
+	for _, e := range m.Effects {
+		switch e {
+		case Nonparallel:
+			np++
+		case Constrained:
+			cons++
+		default:
+			par++
+		}
+	}
+	switch {
+	case len(m.Effects) == 0 || (np == 0 && cons == 0):
+		return "parallel"
+	case cons == 0 && par == 0:
+		return "nonparallel"
+	case cons == 0:
+		return "partial"
+	case np == 0 && par == 0 && m.Comparison == Adjacent && len(m.groupNames()) == 1:
+		return "stereotype"
+	default:
+		return "constrained"
+	}
+}
+
+func (m Model) group(k int) int {
+	if m.Groups == nil || k >= len(m.Groups) {
+		return 0
+	}
+	return m.Groups[k]
+}
+
+func (m Model) groupNames() []string {
+	used := map[int]bool{}
+	for k, e := range m.Effects {
+		if e == Constrained {
+			used[m.group(k)] = true
+		}
+	}
+	var out []string
+	n := len(m.GroupNames)
+	if n == 0 {
+		n = 1
+	}
+	for g := 0; g < n; g++ {
+		if used[g] {
+			name := ""
+			if g < len(m.GroupNames) {
+				name = m.GroupNames[g]
+			}
+			out = append(out, name)
+		}
+	}
+	return out
+}
+
+// paramKind says what one free parameter is.
+type paramKind int
+
+const (
+	pCut paramKind = iota
+	pParallel
+	pFree  // nonparallel slope for one equation
+	pGamma // g_k of a constrained predictor
+	pPhi   // phi_m of a constraint group, m >= 2
+)
+
+// param is one free parameter: its kind, predictor (k), equation (m,
+// 0-based) and constraint group.
+type param struct {
+	kind  paramKind
+	k, m  int
+	group int // dense index among used groups
+	name  string
+}
+
+// layout is the parameter vector of a model for given J and predictors.
+type layout struct {
+	J, K     int
+	params   []param
+	cut      []int   // index of cut m
+	slope    []int   // predictor k: index of its parallel slope / gamma, or of its equation-1 free slope
+	groups   [][]int // used group -> predictor indices
+	gnames   []string
+	groupOf  []int   // predictor -> dense group index (-1 if not constrained)
+	phiIndex [][]int // group -> equation m (0-based) -> parameter index (-1 for m = 0)
+}
+
+func newLayout(m Model, J int, predictors []string) (*layout, error) {
+	K := len(predictors)
+	if len(m.Effects) != K {
+		return nil, fmt.Errorf("model has %d effect structures for %d predictors", len(m.Effects), K)
+	}
+	q := J - 1
+	ly := &layout{J: J, K: K, groupOf: make([]int, K), slope: make([]int, K)}
+	for j := 0; j < q; j++ {
+		ly.cut = append(ly.cut, len(ly.params))
+		ly.params = append(ly.params, param{kind: pCut, m: j, name: fmt.Sprintf("cut%d", j+1)})
+	}
+	// dense group indices in order of first use
+	dense := map[int]int{}
+	for k, e := range m.Effects {
+		ly.groupOf[k] = -1
+		if e != Constrained {
+			continue
+		}
+		g := m.group(k)
+		d, ok := dense[g]
+		if !ok {
+			d = len(ly.groups)
+			dense[g] = d
+			ly.groups = append(ly.groups, nil)
+			name := ""
+			if g < len(m.GroupNames) {
+				name = m.GroupNames[g]
+			}
+			ly.gnames = append(ly.gnames, name)
+		}
+		ly.groupOf[k] = d
+		ly.groups[d] = append(ly.groups[d], k)
+	}
+	for k, e := range m.Effects {
+		name := predictors[k]
+		ly.slope[k] = len(ly.params)
+		switch e {
+		case Parallel:
+			ly.params = append(ly.params, param{kind: pParallel, k: k, name: name})
+		case Nonparallel:
+			for j := 0; j < q; j++ {
+				ly.params = append(ly.params, param{kind: pFree, k: k, m: j, name: fmt.Sprintf("%s[%d]", name, j+1)})
+			}
+		case Constrained:
+			ly.params = append(ly.params, param{kind: pGamma, k: k, group: ly.groupOf[k], name: name})
+		default:
+			return nil, fmt.Errorf("predictor %q: unknown effect structure %d", name, e)
+		}
+	}
+	multi := len(ly.groups) > 1
+	for d := range ly.groups {
+		idx := make([]int, q)
+		idx[0] = -1
+		for j := 1; j < q; j++ {
+			idx[j] = len(ly.params)
+			name := fmt.Sprintf("phi[%d]", j+1)
+			if multi || ly.gnames[d] != "" {
+				gn := ly.gnames[d]
+				if gn == "" {
+					gn = fmt.Sprintf("g%d", d+1)
+				}
+				name = fmt.Sprintf("phi.%s[%d]", gn, j+1)
+			}
+			ly.params = append(ly.params, param{kind: pPhi, m: j, group: d, name: name})
+		}
+		ly.phiIndex = append(ly.phiIndex, idx)
+	}
+	return ly, nil
+}
+
+func (ly *layout) names() []string {
+	out := make([]string, len(ly.params))
+	for i, p := range ly.params {
+		out[i] = p.name
+	}
+	return out
+}
+
+// phi returns the common factor of group d (length J-1, phi[0] = 1).
+func (ly *layout) phi(theta []float64, d int) []float64 {
+	q := ly.J - 1
+	out := make([]float64, q)
+	out[0] = 1
+	for j := 1; j < q; j++ {
+		out[j] = theta[ly.phiIndex[d][j]]
+	}
+	return out
+}
+
+// effects returns the (J-1) x K slopes matrix b_mk, row-major.
+func (ly *layout) effects(theta []float64, eff []Effect) []float64 {
+	q := ly.J - 1
+	B := make([]float64, q*ly.K)
+	phis := make([][]float64, len(ly.groups))
+	for d := range ly.groups {
+		phis[d] = ly.phi(theta, d)
+	}
+	for k, e := range eff {
+		s := ly.slope[k]
+		for j := 0; j < q; j++ {
+			switch e {
+			case Parallel:
+				B[j*ly.K+k] = theta[s]
+			case Nonparallel:
+				B[j*ly.K+k] = theta[s+j]
+			case Constrained:
+				B[j*ly.K+k] = phis[ly.groupOf[k]][j] * theta[s]
+			}
+		}
+	}
+	return B
+}
+
+// effectsString renders the structure compactly for messages.
+func effectsString(eff []Effect, predictors []string) string {
+	var b strings.Builder
+	for k, e := range eff {
+		if k > 0 {
+			b.WriteString(", ")
+		}
+		fmt.Fprintf(&b, "%s:%s", predictors[k], e)
+	}
+	return b.String()
+}
