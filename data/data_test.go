@@ -1,0 +1,264 @@
+package data
+
+import (
+	"errors"
+	"os"
+	"path/filepath"
+	"reflect"
+	"strings"
+	"testing"
+)
+
+var opts = Options{Outcome: "y", Predictors: []string{"a", "b"}}
+
+func TestReadErrors(t *testing.T) {
+	labelled := Options{Outcome: "y", Levels: []string{"low", "mid", "high"}, Predictors: []string{"a"}}
+	tests := []struct {
+		name string
+		in   string
+		opt  Options
+		line int
+		col  string
+		want string // full rendered message
+	}{
+		{"empty file", "", opts, 0, "",
+			`t.csv: file is empty (a header line naming the columns is needed)`},
+		{"blank lines only", "\n\r\n\n", opts, 0, "",
+			`t.csv: file is empty (a header line naming the columns is needed)`},
+		{"header only", "y,a,b\n", opts, 0, "",
+			`t.csv: no data rows after the header`},
+		{"duplicate header", "y,a,b,a\n1,2,3,4\n", opts, 1, "",
+			`t.csv:1: header: column name "a" appears twice (columns 2 and 4)`},
+		{"unnamed header column", "y,a,,b\n1,2,3,4\n", opts, 1, "",
+			`t.csv:1: header: column 3 has no name`},
+		{"missing predictor column", "y,a,c\n1,2,3\n", opts, 0, "b",
+			`t.csv: column "b": predictor column not found in the header; available columns: "y", "a", "c"`},
+		{"missing outcome column", "z,a,b\n1,2,3\n", opts, 0, "y",
+			`t.csv: column "y": outcome column not found in the header; available columns: "z", "a", "b"`},
+		{"missing weights column", "y,a,b\n1,2,3\n", Options{Outcome: "y", Weights: "w"}, 0, "w",
+			`t.csv: column "w": weights column not found in the header; available columns: "y", "a", "b"`},
+		{"ragged short row", "y,a,b\n1,2,3\n2,3\n", opts, 3, "",
+			`t.csv:3: row has 2 fields but the header has 3`},
+		{"ragged long row", "y,a,b\n1,2,3\n2,3,4\n1,2,3,4\n", opts, 4, "",
+			`t.csv:4: row has 4 fields but the header has 3`},
+		{"bad quote", "y,a,b\n1,2,3\n1,x\"y,3\n", opts, 3, "",
+			`t.csv:3: malformed CSV at character 4: bare " in non-quoted-field`},
+		{"non-numeric predictor", "y,a,b\n1,2,3\n2,abc,4\n", opts, 3, "a",
+			`t.csv:3: column "a": value "abc" is not a number`},
+		{"underscore number", "y,a,b\n1,2,3\n2,1_000,4\n", opts, 3, "a",
+			`t.csv:3: column "a": value "1_000" is not a number`},
+		{"literal Inf", "y,a,b\n1,2,Inf\n", opts, 2, "b",
+			`t.csv:2: column "b": value "Inf" is infinite`},
+		{"literal -inf", "y,a,b\n1,-inf,3\n", opts, 2, "a",
+			`t.csv:2: column "a": value "-inf" is infinite`},
+		{"overflow", "y,a,b\n1,2,3\n1,1e999,3\n", opts, 3, "a",
+			`t.csv:3: column "a": value "1e999" is infinite (too large for a number)`},
+		{"literal nan not a token", "y,a,b\n1,nan,3\n", opts, 2, "a",
+			`t.csv:2: column "a": value "nan" is NaN, not a number (leave the cell empty to mark a missing value)`},
+		{"NaN when tokens exclude it", "y,a,b\n1,NaN,3\n", Options{Outcome: "y", Predictors: []string{"a", "b"}, MissingTokens: []string{""}}, 2, "a",
+			`t.csv:2: column "a": value "NaN" is NaN, not a number (leave the cell empty to mark a missing value)`},
+		{"non-numeric weight", "y,a,w\n1,2,x\n", Options{Outcome: "y", Weights: "w"}, 2, "w",
+			`t.csv:2: column "w": value "x" is not a number`},
+		{"non-numeric offset", "y,a,o\n1,2,zz\n", Options{Outcome: "y", Offset: "o"}, 2, "o",
+			`t.csv:2: column "o": value "zz" is not a number`},
+		{"negative weight", "y,w\n1,-2\n2,1\n", Options{Outcome: "y", Weights: "w"}, 2, "w",
+			`t.csv:2: column "w": weight "-2" is negative (frequency weights must be zero or more)`},
+		{"undeclared level", "y,a\nlow,1\nmedium,2\n", labelled, 3, "y",
+			`t.csv:3: column "y": value "medium" is not one of the declared levels: "low", "mid", "high"`},
+		{"outcome not integer", "y,a,b\n1,2,3\n2.5,2,3\n", opts, 3, "y",
+			`t.csv:3: column "y": value "2.5" is not an integer category code (declare the levels to use text labels)`},
+		{"outcome text without levels", "y,a,b\nlow,2,3\n", opts, 2, "y",
+			`t.csv:2: column "y": value "low" is not an integer category code (declare the levels to use text labels)`},
+		{"one category", "y,a,b\n2,1,1\n2,2,2\n3,,1\n", opts, 0, "y",
+			`t.csv: column "y": only one category ("2") among the 2 kept rows; at least two are needed`},
+		{"one declared category observed", "y,a\nmid,1\nmid,2\n", labelled, 0, "y",
+			`t.csv: column "y": only one category ("mid") among the 2 kept rows; at least two are needed`},
+		{"all rows dropped", "y,a,b\n1,,3\nNA,2,3\n2,3,.\n", opts, 0, "",
+			`t.csv: all 3 data rows were dropped for missing values (y: 1, a: 1, b: 1)`},
+		{"refuse missing", "y,a,b\n1,2,3\n2, NA ,3\n", Options{Outcome: "y", Predictors: []string{"a", "b"}, Refuse: true}, 3, "a",
+			`t.csv:3: column "a": missing value ("NA") where missing values are refused`},
+		{"refuse empty outcome", "y,a,b\n,2,3\n", Options{Outcome: "y", Predictors: []string{"a", "b"}, Refuse: true}, 2, "y",
+			`t.csv:2: column "y": missing value (empty cell) where missing values are refused`},
+		{"no outcome option", "y,a\n1,2\n", Options{}, 0, "",
+			`t.csv: no outcome column given`},
+		{"column given twice", "y,a\n1,2\n", Options{Outcome: "y", Predictors: []string{"a", "a"}}, 0, "",
+			`t.csv: column "a" is given twice as predictor`},
+		{"outcome also predictor", "y,a\n1,2\n", Options{Outcome: "y", Predictors: []string{"y"}}, 0, "",
+			`t.csv: column "y" is given both as outcome and as predictor`},
+		{"duplicate declared level", "y,a\n1,2\n", Options{Outcome: "y", Levels: []string{"a", "b", "a"}}, 0, "",
+			`t.csv: outcome level "a" is declared twice`},
+		{"single declared level", "y,a\n1,2\n", Options{Outcome: "y", Levels: []string{"a"}}, 0, "",
+			`t.csv: only one outcome level declared ("a"); at least two are needed`},
+		{"line after quoted newline", "y,a,b\n1,\"2\n\",3\n2,q,3\n", opts, 4, "a",
+			`t.csv:4: column "a": value "q" is not a number`},
+		{"field line is where the field starts", "y,a,b\n1,\"2\n\",\"\nq\"\n", opts, 3, "b",
+			`t.csv:3: column "b": value "q" is not a number`},
+		{"error line counts CRLF", "y,a,b\r\n1,2,3\r\n2,x,3\r\n", opts, 3, "a",
+			`t.csv:3: column "a": value "x" is not a number`},
+		{"long value shortened", "y,a\n1," + strings.Repeat("z", 60) + "\n", Options{Outcome: "y", Predictors: []string{"a"}}, 2, "a",
+			`t.csv:2: column "a": value "` + strings.Repeat("z", 40) + `"... is not a number`},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			d, err := Read(strings.NewReader(tc.in), "t.csv", tc.opt)
+			if err == nil {
+				t.Fatalf("no error; got %d rows", d.N)
+			}
+			var e *Error
+			if !errors.As(err, &e) {
+				t.Fatalf("error %T is not *Error: %v", err, err)
+			}
+			if got := err.Error(); got != tc.want {
+				t.Errorf("message\n got: %s\nwant: %s", got, tc.want)
+			}
+			if e.Line != tc.line || e.Column != tc.col || e.File != "t.csv" {
+				t.Errorf("fields: line %d column %q file %q; want line %d column %q", e.Line, e.Column, e.File, tc.line, tc.col)
+			}
+			if strings.Contains(err.Error(), "\n") {
+				t.Errorf("message spans lines: %q", err.Error())
+			}
+		})
+	}
+}
+
+func TestRead(t *testing.T) {
+	tests := []struct {
+		name string
+		in   string
+		opt  Options
+		want Dataset
+	}{
+		{
+			name: "integer codes sorted numerically, drops counted",
+			in:   "y,a,b,c\n10,1,2,x\n2,3,4,x\n-1,5,6,x\n10,,7,x\n2,8,NA,x\n,1,.,x\n2, 9 ,10,x\n",
+			opt:  opts,
+			want: Dataset{
+				Outcome: "y", Levels: []string{"-1", "2", "10"},
+				Y: []int{2, 1, 0, 1}, Predictors: []string{"a", "b"},
+				X: []float64{1, 2, 3, 4, 5, 6, 9, 10}, N: 4, K: 2,
+				RowsRead: 7, RowsDropped: 3,
+				Dropped: []DropCount{{"y", 1}, {"a", 1}, {"b", 1}},
+				Counts:  []float64{1, 2, 1}, Lines: []int{2, 3, 4, 8},
+			},
+		},
+		{
+			name: "labels, weights, offset, cluster, BOM, CRLF, unobserved level",
+			in:   "\uFEFFg,y,w,o,x\r\nd1,low,2,0.5,1\r\nd2,high,1.5,-1,2\r\nd1,low,1,0,3\r\n",
+			opt: Options{Outcome: "y", Levels: []string{"low", "mid", "high"}, Predictors: []string{"x"},
+				Weights: "w", Offset: "o", Cluster: "g"},
+			want: Dataset{
+				Outcome: "y", Levels: []string{"low", "mid", "high"},
+				Y: []int{0, 2, 0}, Predictors: []string{"x"}, X: []float64{1, 2, 3}, N: 3, K: 1,
+				Weights: []float64{2, 1.5, 1}, Offset: []float64{0.5, -1, 0}, Cluster: []string{"d1", "d2", "d1"},
+				RowsRead: 3, Counts: []float64{3, 0, 1.5}, Lines: []int{2, 3, 4},
+				Unobserved: []string{"mid"},
+			},
+		},
+		{
+			name: "no predictors; custom missing tokens; a row counts once",
+			in:   "y,z,w\n1,q,-9\n2,q,1\n-9,q,-9\n1,q,3\n",
+			opt:  Options{Outcome: "y", Weights: "w", MissingTokens: []string{"-9"}},
+			want: Dataset{
+				Outcome: "y", Levels: []string{"1", "2"}, Y: []int{1, 0},
+				Predictors: []string{}, X: []float64{}, N: 2, K: 0,
+				Weights: []float64{1, 3}, RowsRead: 4, RowsDropped: 2,
+				Dropped: []DropCount{{"y", 1}, {"w", 1}},
+				Counts:  []float64{3, 1}, Lines: []int{3, 5},
+			},
+		},
+		{
+			name: "quoted fields, multi-line cell in an unused column, spaces in header",
+			in:   " y , a ,note\n1,\"2.5\",\"two\nlines\"\n0,1e-3,ok\n",
+			opt:  Options{Outcome: "y", Predictors: []string{"a"}},
+			want: Dataset{
+				Outcome: "y", Levels: []string{"0", "1"}, Y: []int{1, 0},
+				Predictors: []string{"a"}, X: []float64{2.5, 0.001}, N: 2, K: 1,
+				RowsRead: 2, Counts: []float64{1, 1}, Lines: []int{2, 4},
+			},
+		},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			d, err := Read(strings.NewReader(tc.in), "t.csv", tc.opt)
+			if err != nil {
+				t.Fatal(err)
+			}
+			tc.want.File = "t.csv"
+			if !reflect.DeepEqual(*d, tc.want) {
+				t.Errorf("got  %+v\nwant %+v", *d, tc.want)
+			}
+		})
+	}
+}
+
+func TestDatasetMethods(t *testing.T) {
+	in := "y,a,b,w\n1,1,2,0.5\n2,3,4,2\n2,,4,2\n"
+	d, err := Read(strings.NewReader(in), "m.csv", Options{Outcome: "y", Predictors: []string{"a", "b"}, Weights: "w"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := d.NObs(); got != 2.5 {
+		t.Errorf("NObs = %v, want 2.5", got)
+	}
+	if got := d.Row(1); !reflect.DeepEqual(got, []float64{3, 4}) || cap(got) != 2 {
+		t.Errorf("Row(1) = %v (cap %d)", got, cap(got))
+	}
+	if got, want := d.DropSummary(), "1 of 3 rows dropped for missing values or zero weight (a: 1)"; got != want {
+		t.Errorf("DropSummary = %q, want %q", got, want)
+	}
+	d.Weights = nil
+	if got := d.NObs(); got != 2 {
+		t.Errorf("unweighted NObs = %v, want 2", got)
+	}
+	d.RowsDropped = 0
+	if got, want := d.DropSummary(), "no rows dropped for missing values"; got != want {
+		t.Errorf("DropSummary = %q, want %q", got, want)
+	}
+}
+
+func TestLoad(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "ok.csv")
+	if err := os.WriteFile(path, []byte("y,a,b\n1,2,3\n2,4,5\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	d, err := Load(path, opts)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d.File != path || d.N != 2 || !reflect.DeepEqual(d.X, []float64{2, 3, 4, 5}) {
+		t.Errorf("unexpected data set %+v", d)
+	}
+
+	tests := []struct {
+		name, path, want string
+	}{
+		{"missing file", filepath.Join(dir, "nope.csv"), "cannot open file: no such file or directory"},
+		{"directory", dir, "cannot read file: "},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			_, err := Load(tc.path, opts)
+			var e *Error
+			if !errors.As(err, &e) {
+				t.Fatalf("error %T is not *Error: %v", err, err)
+			}
+			if e.File != tc.path || !strings.HasPrefix(e.Msg, tc.want) {
+				t.Errorf("got %q, want file %q and message starting %q", err, tc.path, tc.want)
+			}
+		})
+	}
+}
+
+func TestZeroWeightRowsDropped(t *testing.T) {
+	d, err := Read(strings.NewReader("y,w\n1,1\n2,0\n2,3\n"), "t.csv", Options{Outcome: "y", Weights: "w"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d.N != 2 || d.RowsDropped != 1 || len(d.Dropped) != 1 || d.Dropped[0].Column != "w = 0" {
+		t.Fatalf("got N=%d dropped=%d %+v", d.N, d.RowsDropped, d.Dropped)
+	}
+	if d.NObs() != 4 {
+		t.Fatalf("nobs %v", d.NObs())
+	}
+}

@@ -1,0 +1,82 @@
+// Package data reads a CSV file into an analysis data set for ordinal
+// regression: an ordered outcome, numeric predictors and optional weights,
+// offset and cluster ids. Rows with missing values in a used column are
+// dropped and counted; any other bad input is reported as an *Error that
+// names the file, line, column and value.
+package data
+
+import (
+	"fmt"
+	"strings"
+)
+
+// DropCount is the number of rows dropped because of a missing value in
+// one column.
+type DropCount struct {
+	Column string
+	Rows   int
+}
+
+// Dataset is the analysis data set: the kept rows of the file, with the
+// outcome coded as category indices and the predictors as a dense
+// row-major matrix.
+type Dataset struct {
+	File        string
+	Outcome     string
+	Levels      []string // J category labels, lowest first
+	Y           []int    // kept rows: category index 0..J-1
+	Predictors  []string
+	X           []float64 // kept rows, row-major N x K
+	N, K        int
+	Weights     []float64 // nil when no weights column
+	Offset      []float64 // nil when none
+	Cluster     []string  // nil when none
+	RowsRead    int       // data rows in the file
+	RowsDropped int
+	// Dropped lists rows dropped for missing values per column. A row is
+	// counted once, under the first used column (outcome, predictors,
+	// weights, offset, cluster) that is missing; entries follow that order.
+	Dropped []DropCount
+	Counts  []float64 // per category: kept rows (sum of weights when weighted)
+	Lines   []int     // kept rows: 1-based line number in the file
+	// Unobserved lists declared levels that no kept row has. Reading does
+	// not refuse them; the caller decides.
+	Unobserved []string
+}
+
+// NObs returns the number of observations: the sum of the weights, or N
+// when there are no weights.
+func (d *Dataset) NObs() float64 {
+	if d.Weights == nil {
+		return float64(d.N)
+	}
+	s := 0.0
+	for _, w := range d.Weights {
+		s += w
+	}
+	return s
+}
+
+// Row returns the predictor values of kept row i (a slice of X).
+func (d *Dataset) Row(i int) []float64 {
+	return d.X[i*d.K : (i+1)*d.K : (i+1)*d.K]
+}
+
+// DropSummary describes the dropped rows on one line, for example
+// "12 of 1800 rows dropped for missing values (age: 4, years_resident: 8)".
+// It returns "no rows dropped for missing values" when none were.
+func (d *Dataset) DropSummary() string {
+	if d.RowsDropped == 0 {
+		return "no rows dropped for missing values"
+	}
+	return fmt.Sprintf("%d of %d rows dropped for missing values or zero weight (%s)",
+		d.RowsDropped, d.RowsRead, dropList(d.Dropped))
+}
+
+func dropList(dc []DropCount) string {
+	parts := make([]string, len(dc))
+	for i, c := range dc {
+		parts[i] = fmt.Sprintf("%s: %d", c.Column, c.Rows)
+	}
+	return strings.Join(parts, ", ")
+}

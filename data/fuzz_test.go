@@ -1,0 +1,53 @@
+package data
+
+import (
+	"bytes"
+	"errors"
+	"math"
+	"strings"
+	"testing"
+)
+
+func FuzzRead(f *testing.F) {
+	for _, s := range []string{
+		"y,a,b\n1,2,3\n2,3,4\n",
+		"\uFEFFy,a,b\r\n1,2,3\r\n3,NA,1\r\n2,1e999,0\r\n",
+		"y,a,b\n1,\"2\n\",3\n",
+		"y,a\n1,2\n",
+		"",
+		"y,a,b,a\n",
+		"b,a,y\n,,\n1,1,1\n1,1,2\n",
+	} {
+		f.Add([]byte(s))
+	}
+	opt := Options{Outcome: "y", Predictors: []string{"a", "b"}}
+	f.Fuzz(func(t *testing.T, in []byte) {
+		d, err := Read(bytes.NewReader(in), "fuzz.csv", opt)
+		if err != nil {
+			var e *Error
+			if !errors.As(err, &e) {
+				t.Fatalf("error %T is not *Error: %v", err, err)
+			}
+			if strings.Contains(err.Error(), "\n") {
+				t.Fatalf("message spans lines: %q", err.Error())
+			}
+			return
+		}
+		if d.K != 2 || len(d.Y) != d.N || len(d.X) != d.N*d.K || len(d.Lines) != d.N {
+			t.Fatalf("bad sizes: N=%d K=%d len(Y)=%d len(X)=%d", d.N, d.K, len(d.Y), len(d.X))
+		}
+		if d.N+d.RowsDropped != d.RowsRead {
+			t.Fatalf("rows: kept %d + dropped %d != read %d", d.N, d.RowsDropped, d.RowsRead)
+		}
+		for _, x := range d.X {
+			if math.IsNaN(x) || math.IsInf(x, 0) {
+				t.Fatalf("non-finite X value %v", x)
+			}
+		}
+		for _, y := range d.Y {
+			if y < 0 || y >= len(d.Levels) {
+				t.Fatalf("Y value %d out of range 0..%d", y, len(d.Levels)-1)
+			}
+		}
+	})
+}

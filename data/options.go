@@ -1,0 +1,122 @@
+package data
+
+import (
+	"fmt"
+	"strings"
+)
+
+// Options says which columns of the file to use and how.
+type Options struct {
+	Outcome string // outcome column (required)
+	// Levels gives the category order as labels, lowest first. If empty,
+	// the outcome must hold integer codes and the levels are the distinct
+	// codes observed, sorted numerically, labelled by their decimal text.
+	Levels     []string
+	Predictors []string // numeric predictor columns, in the order wanted
+	Weights    string   // optional column of positive weights ("" = none)
+	Offset     string   // optional numeric offset column
+	Cluster    string   // optional cluster id column (kept as strings)
+	// Refuse makes a missing value in a used column an error instead of a
+	// reason to drop the row.
+	Refuse bool
+	// MissingTokens are the cell values (after trimming spaces) that mean
+	// missing; nil means DefaultMissing.
+	MissingTokens []string
+}
+
+// DefaultMissing are the missing-value tokens used when
+// Options.MissingTokens is nil.
+var DefaultMissing = []string{"", "NA", "NaN", "."}
+
+// role is what a used column is for.
+type role int
+
+const (
+	roleOutcome role = iota
+	rolePredictor
+	roleWeights
+	roleOffset
+	roleCluster
+)
+
+func (r role) String() string {
+	return [...]string{"outcome", "predictor", "weights", "offset", "cluster"}[r]
+}
+
+// usedCol is a column the options ask for, with its place in the header.
+type usedCol struct {
+	name  string
+	role  role
+	pos   int // position among the predictors (predictors only)
+	index int // field index in the file
+}
+
+// plan lists the used columns in Options order: outcome, predictors,
+// weights, offset, cluster.
+func (o *Options) plan() ([]usedCol, error) {
+	if strings.TrimSpace(o.Outcome) == "" {
+		return nil, fmt.Errorf("no outcome column given")
+	}
+	cols := []usedCol{{name: o.Outcome, role: roleOutcome}}
+	for i, p := range o.Predictors {
+		if strings.TrimSpace(p) == "" {
+			return nil, fmt.Errorf("predictor %d has an empty column name", i+1)
+		}
+		cols = append(cols, usedCol{name: p, role: rolePredictor, pos: i})
+	}
+	for _, c := range []struct {
+		name string
+		r    role
+	}{{o.Weights, roleWeights}, {o.Offset, roleOffset}, {o.Cluster, roleCluster}} {
+		if c.name != "" {
+			cols = append(cols, usedCol{name: c.name, role: c.r})
+		}
+	}
+	seen := map[string]role{}
+	for _, c := range cols {
+		if r, ok := seen[c.name]; ok {
+			if r == c.role {
+				return nil, fmt.Errorf("column %q is given twice as %s", c.name, r)
+			}
+			return nil, fmt.Errorf("column %q is given both as %s and as %s", c.name, r, c.role)
+		}
+		seen[c.name] = c.role
+	}
+	if err := checkLevels(o.Levels); err != nil {
+		return nil, err
+	}
+	return cols, nil
+}
+
+func checkLevels(levels []string) error {
+	if len(levels) == 0 {
+		return nil
+	}
+	if len(levels) < 2 {
+		return fmt.Errorf("only one outcome level declared (%s); at least two are needed", quoteList(levels))
+	}
+	seen := map[string]bool{}
+	for i, l := range levels {
+		if strings.TrimSpace(l) != l || l == "" {
+			return fmt.Errorf("outcome level %d (%s) is empty or has surrounding spaces", i+1, quoteCell(l))
+		}
+		if seen[l] {
+			return fmt.Errorf("outcome level %s is declared twice", quoteCell(l))
+		}
+		seen[l] = true
+	}
+	return nil
+}
+
+// missingSet returns the set of missing-value tokens, trimmed.
+func (o *Options) missingSet() map[string]bool {
+	toks := o.MissingTokens
+	if toks == nil {
+		toks = DefaultMissing
+	}
+	m := make(map[string]bool, len(toks))
+	for _, t := range toks {
+		m[strings.TrimSpace(t)] = true
+	}
+	return m
+}

@@ -1,0 +1,132 @@
+package data
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"io/fs"
+	"os"
+	"strings"
+)
+
+var utf8BOM = []byte{0xEF, 0xBB, 0xBF}
+
+// Load reads the CSV file at path. See Read.
+func Load(path string, opt Options) (*Dataset, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, &Error{File: path, Msg: "cannot open file: " + osReason(err), Err: err}
+	}
+	defer f.Close()
+	return Read(f, path, opt)
+}
+
+func osReason(err error) string {
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		return pe.Err.Error()
+	}
+	return err.Error()
+}
+
+// Read reads a comma-separated file with a header line from r and builds
+// the data set the options ask for. The name is used in messages. A UTF-8
+// byte order mark and CRLF line endings are accepted.
+func Read(r io.Reader, name string, opt Options) (*Dataset, error) {
+	if name == "" {
+		name = "<input>"
+	}
+	rd := &reader{file: name, opt: opt, missing: opt.missingSet()}
+	d, err := rd.read(r)
+	if err != nil {
+		return nil, err
+	}
+	return d, nil
+}
+
+// reader holds the state of one Read.
+type reader struct {
+	file    string
+	opt     Options
+	missing map[string]bool
+	cr      *csv.Reader
+	cols    []usedCol
+	width   int
+}
+
+func (r *reader) fail(line int, column, format string, args ...any) *Error {
+	return &Error{File: r.file, Line: line, Column: column, Msg: fmt.Sprintf(format, args...)}
+}
+
+// csvErr converts an error from the CSV reader.
+func (r *reader) csvErr(err error, rec []string) *Error {
+	var pe *csv.ParseError
+	if errors.As(err, &pe) {
+		if errors.Is(pe.Err, csv.ErrFieldCount) {
+			e := r.fail(pe.StartLine, "", "row has %d fields but the header has %d", len(rec), r.width)
+			e.Err = err
+			return e
+		}
+		e := r.fail(pe.Line, "", "malformed CSV at character %d: %v", pe.Column, pe.Err)
+		e.Err = err
+		return e
+	}
+	return &Error{File: r.file, Msg: "cannot read file: " + osReason(err), Err: err}
+}
+
+func (r *reader) read(in io.Reader) (*Dataset, error) {
+	cols, err := r.opt.plan()
+	if err != nil {
+		return nil, &Error{File: r.file, Msg: err.Error()}
+	}
+	br := bufio.NewReader(in)
+	if b, err := br.Peek(len(utf8BOM)); err == nil && bytes.Equal(b, utf8BOM) {
+		br.Discard(len(utf8BOM))
+	}
+	r.cr = csv.NewReader(br)
+	r.cr.FieldsPerRecord = 0 // the header sets the width
+	r.cr.TrimLeadingSpace = true
+	if err := r.header(cols); err != nil {
+		return nil, err
+	}
+	return r.rows()
+}
+
+// header reads the header line and finds the used columns in it.
+func (r *reader) header(cols []usedCol) error {
+	hdr, err := r.cr.Read()
+	if err == io.EOF {
+		return &Error{File: r.file, Msg: "file is empty (a header line naming the columns is needed)"}
+	}
+	if err != nil {
+		return r.csvErr(err, hdr)
+	}
+	line, _ := r.cr.FieldPos(0)
+	r.width = len(hdr)
+	names := make([]string, len(hdr))
+	where := make(map[string]int, len(hdr))
+	for i, h := range hdr {
+		n := strings.TrimSpace(h)
+		if n == "" {
+			return r.fail(line, "", "header: column %d has no name", i+1)
+		}
+		if j, dup := where[n]; dup {
+			return r.fail(line, "", "header: column name %s appears twice (columns %d and %d)", quoteCell(n), j+1, i+1)
+		}
+		where[n] = i
+		names[i] = n
+	}
+	for i := range cols {
+		j, ok := where[cols[i].name]
+		if !ok {
+			return r.fail(0, cols[i].name, "%s column not found in the header; available columns: %s",
+				cols[i].role, quoteList(names))
+		}
+		cols[i].index = j
+	}
+	r.cols = cols
+	return nil
+}

@@ -1,0 +1,176 @@
+package data
+
+import (
+	"io"
+	"slices"
+	"strconv"
+	"strings"
+)
+
+// rows reads the data rows and builds the data set.
+func (r *reader) rows() (*Dataset, error) {
+	opt := &r.opt
+	d := &Dataset{
+		File:       r.file,
+		Outcome:    opt.Outcome,
+		Predictors: slices.Clone(opt.Predictors),
+		K:          len(opt.Predictors),
+	}
+	if d.Predictors == nil {
+		d.Predictors = []string{}
+	}
+	labels := map[string]int{}
+	for i, l := range opt.Levels {
+		labels[l] = i
+	}
+	var codes []int64 // outcome codes of kept rows, when no labels are declared
+	drops := make([]int, len(r.cols))
+	zeroWeight := 0 // rows with frequency weight 0 stand for no observation
+	xs := make([]float64, d.K)
+	for {
+		rec, err := r.cr.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, r.csvErr(err, rec)
+		}
+		d.RowsRead++
+		miss := -1
+		y, code, w, off, cl := 0, int64(0), 1.0, 0.0, ""
+		for ci, c := range r.cols {
+			cell := strings.TrimSpace(rec[c.index])
+			line, _ := r.cr.FieldPos(c.index)
+			if r.missing[cell] {
+				if opt.Refuse {
+					return nil, r.fail(line, c.name, "missing value (%s) where missing values are refused", describeMissing(cell))
+				}
+				if miss < 0 {
+					miss = ci
+				}
+				continue
+			}
+			var msg string
+			switch c.role {
+			case roleOutcome:
+				if len(opt.Levels) > 0 {
+					i, ok := labels[cell]
+					if !ok {
+						msg = "value " + quoteCell(cell) + " is not one of the declared levels: " + quoteList(opt.Levels)
+					}
+					y = i
+				} else {
+					code, msg = parseCode(cell)
+				}
+			case rolePredictor:
+				xs[c.pos], msg = parseNumber(cell)
+			case roleWeights:
+				w, msg = parseNumber(cell)
+				if msg == "" && w < 0 {
+					msg = "weight " + quoteCell(cell) + " is negative (frequency weights must be zero or more)"
+				}
+			case roleOffset:
+				off, msg = parseNumber(cell)
+			case roleCluster:
+				cl = cell
+			}
+			if msg != "" {
+				return nil, r.fail(line, c.name, "%s", msg)
+			}
+		}
+		if miss >= 0 {
+			drops[miss]++
+			continue
+		}
+		if w == 0 {
+			zeroWeight++
+			continue
+		}
+		line, _ := r.cr.FieldPos(0)
+		d.Lines = append(d.Lines, line)
+		d.Y = append(d.Y, y)
+		codes = append(codes, code)
+		d.X = append(d.X, xs...)
+		if opt.Weights != "" {
+			d.Weights = append(d.Weights, w)
+		}
+		if opt.Offset != "" {
+			d.Offset = append(d.Offset, off)
+		}
+		if opt.Cluster != "" {
+			d.Cluster = append(d.Cluster, cl)
+		}
+	}
+	if d.RowsRead == 0 {
+		return nil, r.fail(0, "", "no data rows after the header")
+	}
+	d.N = len(d.Y)
+	for ci, n := range drops {
+		if n > 0 {
+			d.Dropped = append(d.Dropped, DropCount{Column: r.cols[ci].name, Rows: n})
+			d.RowsDropped += n
+		}
+	}
+	if zeroWeight > 0 {
+		d.Dropped = append(d.Dropped, DropCount{Column: opt.Weights + " = 0", Rows: zeroWeight})
+		d.RowsDropped += zeroWeight
+	}
+	if d.N == 0 {
+		return nil, r.fail(0, "", "all %d data rows were dropped for missing values (%s)", d.RowsRead, dropList(d.Dropped))
+	}
+	if d.X == nil {
+		d.X = []float64{}
+	}
+	if len(opt.Levels) > 0 {
+		d.Levels = slices.Clone(opt.Levels)
+	} else {
+		d.Levels = codeLevels(codes, d.Y)
+	}
+	if err := r.tally(d); err != nil {
+		return nil, err
+	}
+	return d, nil
+}
+
+// codeLevels sets y to the index of each code among the distinct codes,
+// sorted numerically, and returns their decimal labels.
+func codeLevels(codes []int64, y []int) []string {
+	distinct := slices.Clone(codes)
+	slices.Sort(distinct)
+	distinct = slices.Compact(distinct)
+	for i, c := range codes {
+		y[i], _ = slices.BinarySearch(distinct, c)
+	}
+	labels := make([]string, len(distinct))
+	for i, c := range distinct {
+		labels[i] = strconv.FormatInt(c, 10)
+	}
+	return labels
+}
+
+// tally counts the kept rows per category and checks that at least two
+// categories are present.
+func (r *reader) tally(d *Dataset) error {
+	d.Counts = make([]float64, len(d.Levels))
+	for i, y := range d.Y {
+		if d.Weights != nil {
+			d.Counts[y] += d.Weights[i]
+		} else {
+			d.Counts[y]++
+		}
+	}
+	seen := 0
+	last := ""
+	for j, c := range d.Counts {
+		if c > 0 {
+			seen++
+			last = d.Levels[j]
+		} else {
+			d.Unobserved = append(d.Unobserved, d.Levels[j])
+		}
+	}
+	if seen < 2 {
+		return r.fail(0, d.Outcome, "only one category (%s) among the %d kept rows; at least two are needed", quoteCell(last), d.N)
+	}
+	return nil
+}
