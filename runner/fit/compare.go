@@ -209,18 +209,29 @@ func (k *kernel) adjacent(L []float64, c int, g, h []float64) (float64, bool) {
 		s = make([]float64, q+1)
 	}
 	s[q] = 0
-	mx := 0.0
+	top := q
 	for j := q - 1; j >= 0; j-- {
 		s[j] = s[j+1] + ps[j]
-		if s[j] > mx {
-			mx = s[j]
+		if s[j] > s[top] {
+			top = j
 		}
+	}
+	// Re-sum relative to the largest term so that huge psi values do not
+	// cost digits: t_j = s_j - s_top from the psi between them.
+	s[top] = 0
+	for j := top - 1; j >= 0; j-- {
+		s[j] = s[j+1] + ps[j]
+	}
+	acc0 := 0.0
+	for j := top + 1; j <= q; j++ {
+		acc0 -= ps[j-1]
+		s[j] = acc0
 	}
 	sum := 0.0
 	for j := 0; j <= q; j++ {
-		sum += math.Exp(s[j] - mx)
+		sum += math.Exp(s[j])
 	}
-	lse := mx + math.Log(sum)
+	lse := math.Log(sum)
 	lp := s[c] - lse
 	if math.IsNaN(lp) || math.IsInf(lp, 0) {
 		return math.Inf(-1), false
