@@ -14,6 +14,11 @@ const (
 	Cumulative Comparison = iota // F(L_m) = P(y <= m)
 	Stage                        // forward: F(L_m) = P(y = m | y >= m)
 	Adjacent                     // F(L_m) = P(y = m | y in {m, m+1})
+
+	// stackedBinary is not a model of y: it is the sum over m of the binary
+	// log-likelihoods of 1[y <= m], used by the Wolfe-Gould test (parallel
+	// slopes: one stacked binary fit; free slopes: J-1 separate fits).
+	stackedBinary
 )
 
 var comparisonNames = []string{"cumulative", "stage", "adjacent"}
@@ -50,7 +55,7 @@ func (k *kernel) pairNeeded(m, l int) bool {
 	switch k.cmp {
 	case Cumulative:
 		return l-m <= 1
-	case Stage:
+	case Stage, stackedBinary:
 		return m == l
 	}
 	return true
@@ -79,6 +84,8 @@ func (k *kernel) eval(L []float64, c int, g, h []float64) (float64, bool) {
 			return k.stageBackward(L, c, g, h)
 		}
 		return k.stageForward(L, c, g, h)
+	case stackedBinary:
+		return k.stacked(L, c, g, h)
 	default:
 		return k.adjacent(L, c, g, h)
 	}
@@ -163,6 +170,21 @@ func (k *kernel) stageForward(L []float64, c int, g, h []float64) (float64, bool
 		t := k.link.lower(L[c])
 		lp += t.v
 		k.put(g, h, c, t)
+	}
+	return lp, !math.IsInf(lp, -1) && !math.IsNaN(lp)
+}
+
+func (k *kernel) stacked(L []float64, c int, g, h []float64) (float64, bool) {
+	lp := 0.0
+	for m := 0; m < k.nEq; m++ {
+		var t tail
+		if c <= m {
+			t = k.link.lower(L[m])
+		} else {
+			t = k.link.upper(L[m])
+		}
+		lp += t.v
+		k.put(g, h, m, t)
 	}
 	return lp, !math.IsInf(lp, -1) && !math.IsNaN(lp)
 }

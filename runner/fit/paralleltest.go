@@ -1,0 +1,222 @@
+package fit
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"gonum.org/v1/gonum/mat"
+	"gonum.org/v1/gonum/stat/distuv"
+)
+
+// Test is the outcome of one chi-square test.
+type Test struct {
+	Name   string  `json:"name"`
+	OK     bool    `json:"ok"`
+	Reason string  `json:"reason,omitempty"`
+	Chi2   float64 `json:"chi2"`
+	DF     int     `json:"df"`
+	P      float64 `json:"p"`
+	// Log-likelihoods of the two models (likelihood-ratio type tests).
+	LLRestricted float64 `json:"ll_restricted,omitempty"`
+	LLFull       float64 `json:"ll_full,omitempty"`
+}
+
+func failedTest(name, format string, a ...any) Test {
+	return Test{Name: name, Reason: fmt.Sprintf(format, a...)}
+}
+
+func chi2Test(name string, x float64, df int) Test {
+	t := Test{Name: name, OK: true, Chi2: x, DF: df}
+	t.P = ChiSquareP(x, df)
+	return t
+}
+
+// ChiSquareP is the upper tail probability of a chi-square with df degrees
+// of freedom.
+func ChiSquareP(x float64, df int) float64 {
+	if df <= 0 {
+		return math.NaN()
+	}
+	if x <= 0 {
+		return 1
+	}
+	return distuv.ChiSquared{K: float64(df)}.Survival(x)
+}
+
+// LRTest compares nested fits: 2 (ll_full - ll_restricted) on the difference
+// in the number of parameters.
+func LRTest(restricted, full *Result) Test {
+	if restricted == nil || full == nil {
+		return failedTest("lr", "a model was not fitted")
+	}
+	if !restricted.OK() || !full.OK() {
+		var bad []string
+		for _, r := range []*Result{restricted, full} {
+			if !r.OK() {
+				bad = append(bad, fmt.Sprintf("%s: %s", r.Name, r.Status))
+			}
+		}
+		return failedTest("lr", "a model has no finite maximum or did not converge (%s)", strings.Join(bad, "; "))
+	}
+	df := full.NParams - restricted.NParams
+	if df <= 0 {
+		return failedTest("lr", "%s does not have more parameters than %s", full.Name, restricted.Name)
+	}
+	t := chi2Test("lr", 2*(full.LogLik-restricted.LogLik), df)
+	t.LLRestricted, t.LLFull = restricted.LogLik, full.LogLik
+	return t
+}
+
+// WaldEqualSlopes tests, in fit r, that each listed predictor has the same
+// slope in every equation (the predictors must be nonparallel in r).
+func WaldEqualSlopes(r *Result, predictors []string) Test {
+	if !r.OK() {
+		return failedTest("wald", "%s has no finite maximum or did not converge", r.Name)
+	}
+	P := len(r.Estimates)
+	q := r.J - 1
+	var rows [][]float64
+	for _, name := range predictors {
+		k := indexOf(r.Predictors, name)
+		if k < 0 || r.Model.Effects[k] != Nonparallel {
+			return failedTest("wald", "%s is not a nonparallel predictor of %s", name, r.Name)
+		}
+		first := indexOf(r.ParamNames, fmt.Sprintf("%s[1]", name))
+		for m := 0; m+1 < q; m++ {
+			row := make([]float64, P)
+			row[first+m] = 1
+			row[first+m+1] = -1
+			rows = append(rows, row)
+		}
+	}
+	x, err := waldStat(rows, r.Estimates, r.Cov)
+	if err != nil {
+		return failedTest("wald", "%v", err)
+	}
+	return chi2Test("wald", x, len(rows))
+}
+
+// waldStat is (R t)' (R V R')^-1 (R t).
+func waldStat(R [][]float64, theta, V []float64) (float64, error) {
+	n, P := len(R), len(theta)
+	if n == 0 {
+		return 0, fmt.Errorf("no restrictions")
+	}
+	rt := make([]float64, n)
+	for i, row := range R {
+		rt[i] = dot(row, theta)
+	}
+	M := mat.NewSymDense(n, nil)
+	for i := 0; i < n; i++ {
+		for j := i; j < n; j++ {
+			s := 0.0
+			for a := 0; a < P; a++ {
+				if R[i][a] == 0 {
+					continue
+				}
+				for b := 0; b < P; b++ {
+					s += R[i][a] * V[a*P+b] * R[j][b]
+				}
+			}
+			M.SetSym(i, j, s)
+		}
+	}
+	return quadInv(M, rt)
+}
+
+// quadInv is x' M^-1 x for a positive definite M.
+func quadInv(M *mat.SymDense, x []float64) (float64, error) {
+	var ch mat.Cholesky
+	if !ch.Factorize(M) {
+		return 0, fmt.Errorf("the covariance of the restrictions is singular")
+	}
+	var sol mat.VecDense
+	if err := ch.SolveVecTo(&sol, mat.NewVecDense(len(x), append([]float64(nil), x...))); err != nil {
+		return 0, err
+	}
+	return mat.Dot(&sol, mat.NewVecDense(len(x), x)), nil
+}
+
+// ScoreTest evaluates, at the estimates of the restricted fit, the score and
+// observed information of model full (in which the restricted fit's
+// parallel predictors may be nonparallel): g' (-H)^-1 g.
+func ScoreTest(d *Data, restricted *Result, full Model) Test {
+	if !restricted.OK() {
+		return failedTest("score", "%s has no finite maximum or did not converge", restricted.Name)
+	}
+	ly, err := newLayout(full, d.J, d.Predictors)
+	if err != nil {
+		return failedTest("score", "%v", err)
+	}
+	theta, err := thetaFromEffects(ly, full, restricted.Cutpoints, restricted.Effects)
+	if err != nil {
+		return failedTest("score", "%v", err)
+	}
+	pr := newProblem(d.design(), full, ly, 0)
+	a := pr.evaluate(theta, 2, false)
+	if a.bad {
+		return failedTest("score", "the restricted estimates give a zero probability to an observed category")
+	}
+	g := pr.gradient(theta, a)
+	H := pr.hessian(theta, a, true)
+	P := len(g)
+	M := mat.NewSymDense(P, nil)
+	for i := 0; i < P; i++ {
+		for j := i; j < P; j++ {
+			M.SetSym(i, j, -H[i*P+j])
+		}
+	}
+	x, err := quadInv(M, g)
+	if err != nil {
+		return failedTest("score", "the information of %s is singular at the restricted estimates", full.Name())
+	}
+	return chi2Test("score", x, P-restricted.NParams)
+}
+
+// thetaFromEffects writes cutpoints and an effects matrix into the
+// parameter vector of a model without constrained predictors.
+func thetaFromEffects(ly *layout, m Model, cut []float64, eff [][]float64) ([]float64, error) {
+	theta := make([]float64, len(ly.params))
+	q := ly.J - 1
+	for j := 0; j < q; j++ {
+		theta[ly.cut[j]] = cut[j]
+	}
+	for k, e := range m.Effects {
+		s := ly.slope[k]
+		switch e {
+		case Parallel:
+			theta[s] = eff[0][k]
+			for j := 1; j < q; j++ {
+				if eff[j][k] != eff[0][k] {
+					return nil, fmt.Errorf("predictor %d is not parallel in the restricted fit", k)
+				}
+			}
+		case Nonparallel:
+			for j := 0; j < q; j++ {
+				theta[s+j] = eff[j][k]
+			}
+		default:
+			return nil, fmt.Errorf("score test with constrained predictors is not defined here")
+		}
+	}
+	return theta, nil
+}
+
+func indexOf(xs []string, x string) int {
+	for i, v := range xs {
+		if v == x {
+			return i
+		}
+	}
+	return -1
+}
+
+// allEffects returns a slice of K copies of e.
+func allEffects(K int, e Effect) []Effect {
+	out := make([]Effect, K)
+	for i := range out {
+		out[i] = e
+	}
+	return out
+}

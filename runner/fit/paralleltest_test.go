@@ -1,0 +1,203 @@
+package fit
+
+import (
+	"encoding/json"
+	"math"
+	"os"
+	"path/filepath"
+	"testing"
+)
+
+type refTest struct {
+	OK     *bool   `json:"ok"`
+	Chi2   float64 `json:"chi2"`
+	DF     int     `json:"df"`
+	P      float64 `json:"p"`
+	Reason string  `json:"reason"`
+}
+
+type refStep struct {
+	Step    int                `json:"step"`
+	LogLik  float64            `json:"model_loglik"`
+	Tests   map[string]refTest `json:"tests"`
+	Imposed *string            `json:"imposed"`
+	P       float64            `json:"p"`
+}
+
+type refCumTests struct {
+	Brant struct {
+		OK          bool               `json:"ok"`
+		Omnibus     refTest            `json:"omnibus"`
+		PerVariable map[string]refTest `json:"per_variable"`
+	} `json:"brant"`
+	Global      map[string]refTest            `json:"global"`
+	PerVariable map[string]map[string]refTest `json:"per_variable"`
+	Stepwise    struct {
+		OK         *bool     `json:"ok"`
+		Alpha      float64   `json:"alpha"`
+		Steps      []refStep `json:"steps"`
+		FinalPar   strList   `json:"final_parallel"`
+		FinalWald  refTest   `json:"final_wald_in_nonparallel_model"`
+		FinalModLL float64   `json:"final_model_loglik"`
+	} `json:"stepwise"`
+}
+
+type refTests struct {
+	Predictors strList         `json:"predictors"`
+	PartialSet strList         `json:"partial_set"`
+	Cumulative json.RawMessage `json:"cumulative"`
+}
+
+func loadTests(t *testing.T, name string) (*refTests, *refCumTests) {
+	b, err := os.ReadFile(filepath.Join(refDir, name+".tests.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var rt refTests
+	if err := json.Unmarshal(b, &rt); err != nil {
+		t.Fatal(err)
+	}
+	var ct refCumTests
+	if err := json.Unmarshal(rt.Cumulative, &ct); err != nil {
+		t.Fatal(err)
+	}
+	return &rt, &ct
+}
+
+func checkChi2(t *testing.T, label string, got Test, want refTest) {
+	t.Helper()
+	if want.OK != nil && !*want.OK {
+		if got.OK {
+			t.Errorf("%s: reference cannot compute it (%s), got chi2 %.6g", label, want.Reason, got.Chi2)
+		}
+		return
+	}
+	if !got.OK {
+		t.Errorf("%s: not computed: %s", label, got.Reason)
+		return
+	}
+	if !near(got.Chi2, want.Chi2, 1e-4, 1e-6) || got.DF != want.DF || !near(got.P, want.P, 1e-4, 1e-10) {
+		t.Errorf("%s: chi2 %.8g df %d p %.6g; want %.8g df %d p %.6g", label, got.Chi2, got.DF, got.P, want.Chi2, want.DF, want.P)
+	}
+}
+
+// TestParallelLinesCumulative reproduces the cumulative-logit parallel-lines
+// tests of every reference data set. On gsswarm (General Social Survey,
+// Long 1997) the Brant values reproduce Long & Freese (2014): all 49.18,
+// yr89 13.01, male 22.24, white 1.27, age 7.38, ed 4.31, prst 4.33; the
+// stepwise selection reproduces Williams (2006): white .7136, ed .1589,
+// prst .2046, age .0743, final chi2(8) = 12.80, p = .1190.
+func TestParallelLinesCumulative(t *testing.T) {
+	for _, name := range refNames {
+		t.Run(name, func(t *testing.T) {
+			t.Logf("data: %s", refSources[name])
+			rs := loadRef(t, name)
+			rt, ct := loadTests(t, name)
+			d := rs.data(rt.Predictors)
+			K := len(rt.Predictors)
+			br := Brant(d, Options{})
+			if ct.Brant.OK != br.OK {
+				t.Fatalf("brant ok %v (%s), reference %v", br.OK, br.Reason, ct.Brant.OK)
+			}
+			if br.OK {
+				checkChi2(t, "brant omnibus", br.Omnibus, ct.Brant.Omnibus)
+				for _, pv := range br.PerVariable {
+					checkChi2(t, "brant "+pv.Name, pv, ct.Brant.PerVariable[pv.Name])
+				}
+			}
+			par, _ := Fit(d, Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(K, Parallel)}, Options{})
+			np, _ := Fit(d, Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(K, Nonparallel)}, Options{})
+			checkChi2(t, "lr", LRTest(par, np), ct.Global["lr"])
+			checkChi2(t, "score", ScoreTest(d, par, np.Model), ct.Global["score"])
+			checkChi2(t, "wald", WaldEqualSlopes(np, rt.Predictors), ct.Global["wald"])
+			checkChi2(t, "wolfe_gould", WolfeGould(d, Options{}), ct.Global["wolfe_gould"])
+			for _, p := range rt.Predictors {
+				want := ct.PerVariable[p]
+				if w, ok := want["wald"]; ok {
+					checkChi2(t, "wald "+p, WaldEqualSlopes(np, []string{p}), w)
+				}
+				if w, ok := want["lr"]; ok {
+					m := np.Model
+					m.Effects = allEffects(K, Nonparallel)
+					m.Effects[indexOf(rt.Predictors, p)] = Parallel
+					r, _ := Fit(d, m, Options{})
+					checkChi2(t, "lr "+p, LRTest(r, np), w)
+				}
+			}
+			sw := Stepwise(d, Model{Comparison: Cumulative, Link: Logit}, rt.Predictors, 0.05, "wald", Options{})
+			if ct.Stepwise.OK != nil && !*ct.Stepwise.OK {
+				if sw.OK {
+					t.Errorf("stepwise should fail as in the reference")
+				}
+				return
+			}
+			if !sw.OK {
+				t.Fatalf("stepwise: %s", sw.Reason)
+			}
+			if len(sw.Steps) != len(ct.Stepwise.Steps) {
+				t.Fatalf("%d steps, want %d", len(sw.Steps), len(ct.Stepwise.Steps))
+			}
+			for i, st := range sw.Steps {
+				ws := ct.Stepwise.Steps[i]
+				if ws.Tests != nil && math.Abs(st.LogLik-ws.LogLik) > 1e-6 {
+					t.Errorf("step %d loglik %.8f want %.8f", i+1, st.LogLik, ws.LogLik)
+				}
+				for _, tt := range st.Tests {
+					checkChi2(t, "stepwise "+tt.Name, tt, ws.Tests[tt.Name])
+				}
+				wantImp := ""
+				if ws.Imposed != nil {
+					wantImp = *ws.Imposed
+				}
+				if st.Imposed != wantImp {
+					t.Errorf("step %d imposed %q want %q", i+1, st.Imposed, wantImp)
+				}
+			}
+			if len(sw.FinalParallel) > 0 {
+				checkChi2(t, "stepwise final", sw.FinalTest, ct.Stepwise.FinalWald)
+			}
+		})
+	}
+}
+
+// TestParallelLinesStageAdjacent reproduces the likelihood-ratio tests of
+// the stage and adjacent comparisons (overall and per variable).
+func TestParallelLinesStageAdjacent(t *testing.T) {
+	for _, name := range refNames {
+		t.Run(name, func(t *testing.T) {
+			t.Logf("data: %s", refSources[name])
+			rs := loadRef(t, name)
+			b, _ := os.ReadFile(filepath.Join(refDir, name+".tests.json"))
+			var raw map[string]json.RawMessage
+			if err := json.Unmarshal(b, &raw); err != nil {
+				t.Fatal(err)
+			}
+			rt, _ := loadTests(t, name)
+			d := rs.data(rt.Predictors)
+			K := len(rt.Predictors)
+			for _, cmp := range []Comparison{Stage, Adjacent} {
+				var sec struct {
+					LR    refTest            `json:"lr_parallel_vs_nonparallel"`
+					PerLR map[string]refTest `json:"per_variable_lr"`
+				}
+				if err := json.Unmarshal(raw[cmp.String()], &sec); err != nil {
+					t.Fatal(err)
+				}
+				par, _ := Fit(d, Model{Comparison: cmp, Link: Logit, Effects: allEffects(K, Parallel)}, Options{})
+				np, _ := Fit(d, Model{Comparison: cmp, Link: Logit, Effects: allEffects(K, Nonparallel)}, Options{})
+				checkChi2(t, cmp.String()+" lr", LRTest(par, np), sec.LR)
+				for k, p := range rt.Predictors {
+					w, ok := sec.PerLR[p]
+					if !ok {
+						continue
+					}
+					m := np.Model
+					m.Effects = allEffects(K, Nonparallel)
+					m.Effects[k] = Parallel
+					r, _ := Fit(d, m, Options{})
+					checkChi2(t, cmp.String()+" lr "+p, LRTest(r, np), w)
+				}
+			}
+		})
+	}
+}
