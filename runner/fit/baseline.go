@@ -9,12 +9,12 @@ import (
 // (multinomial logit) form: for every category j other than Ref,
 // ln[P(y=j)/P(y=Ref)] = Cut[j] + x'Coef[j] (note the plus sign).
 type Baseline struct {
-	Ref        int      // reference category (0-based)
-	Categories []int    // the non-reference categories, in order
-	Names      []string // "cut1".., "var[1]".. indexed by position in Categories
-	Estimates  []float64
-	StdErrors  []float64
-	Cov        []float64
+	Ref        int       `json:"reference"`  // reference category (0-based)
+	Categories []int     `json:"categories"` // the non-reference categories, in order (0-based)
+	Names      []string  `json:"names"`      // "cut1".., "var[1]".. indexed by position in Categories
+	Estimates  []float64 `json:"estimates"`
+	StdErrors  []float64 `json:"std_errors"`
+	Cov        []float64 `json:"-"`
 }
 
 // Baseline converts an adjacent nonparallel logit fit to baseline-category

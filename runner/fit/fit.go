@@ -89,10 +89,10 @@ type Result struct {
 
 // Separation describes a fit with no finite maximum.
 type Separation struct {
-	Parameters []string // parameters that diverge
-	Predictors []string
-	Boundaries []string // "lo|hi" category boundaries involved
-	Evidence   []string // data facts such as `category "1" occurs only at temp = 0`
+	Parameters []string `json:"parameters"` // parameters that diverge
+	Predictors []string `json:"predictors"`
+	Boundaries []string `json:"boundaries"` // "lo|hi" category boundaries involved
+	Evidence   []string `json:"evidence"`   // data facts such as `category "1" occurs only at temp = 0`
 }
 
 // Estimate returns the estimate named name.

@@ -1,0 +1,113 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+var refDir = filepath.Join("..", "..", "..", "shared", "reference")
+
+func runCLI(args ...string) (string, string, int) {
+	var out, errb bytes.Buffer
+	code := run(args, &out, &errb)
+	return out.String(), errb.String(), code
+}
+
+// The command reproduces the partial proportional odds fit of the General
+// Social Survey 1977/1989 extract (Long 1997) in the reference files.
+func TestFitJSONMatchesReference(t *testing.T) {
+	out, errs, code := runCLI("fit", "--data", filepath.Join(refDir, "gsswarm.csv"), "--outcome", "warm",
+		"--predictors", "yr89,male,white,age,ed,prst", "--nonparallel", "yr89,male", "--json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var got struct {
+		LogLik    float64              `json:"loglik"`
+		NParams   int                  `json:"n_params"`
+		NObs      float64              `json:"nobs"`
+		AIC, BIC  float64
+		Converged bool                 `json:"converged"`
+		Cutpoints []float64            `json:"cutpoints"`
+		Effects   map[string][]float64 `json:"effects"`
+		Estimates map[string]float64   `json:"estimates"`
+		StdErrors map[string]float64   `json:"std_errors"`
+	}
+	if err := json.Unmarshal([]byte(out), &got); err != nil {
+		t.Fatal(err)
+	}
+	b, _ := os.ReadFile(filepath.Join(refDir, "gsswarm.models.json"))
+	var refs []struct {
+		ID        string             `json:"id"`
+		LogLik    float64            `json:"loglik"`
+		Estimates map[string]float64 `json:"estimates"`
+		SE        map[string]float64 `json:"se_oim"`
+	}
+	json.Unmarshal(b, &refs)
+	for _, r := range refs {
+		if r.ID != "cumulative/partial_unconstrained/logit" {
+			continue
+		}
+		if math.Abs(got.LogLik-r.LogLik) > 1e-6 || !got.Converged || got.NParams != 13 || got.NObs != 2293 {
+			t.Fatalf("got %+v", got)
+		}
+		for n, v := range r.Estimates {
+			if math.Abs(got.Estimates[n]-v) > 1e-5*math.Abs(v)+1e-7 || math.Abs(got.StdErrors[n]-r.SE[n]) > 1e-5*r.SE[n] {
+				t.Errorf("%s: %v (%v), want %v (%v)", n, got.Estimates[n], got.StdErrors[n], v, r.SE[n])
+			}
+		}
+		return
+	}
+	t.Fatal("reference record missing")
+}
+
+func TestFitTableAndFailures(t *testing.T) {
+	gss := filepath.Join(refDir, "gsswarm.csv")
+	wine := filepath.Join(refDir, "wine.csv") // Randall (1989) wine bitterness
+	tmp := t.TempDir()
+	ragged := filepath.Join(tmp, "ragged.csv")
+	os.WriteFile(ragged, []byte("y,a\n1,2\n2\n"), 0o644)
+	cases := []struct {
+		name string
+		args []string
+		code int
+		want string // in stdout (code 0) or stderr
+	}{
+		{"table", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89,male", "--approach", "stage"}, 0, "stage/parallel/logit"},
+		{"baseline", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89", "--approach", "adjacent", "--all-nonparallel", "--baseline", "1"}, 0, "Baseline-category form"},
+		{"separation", []string{"fit", "--data", wine, "--outcome", "rating", "--predictors", "temp,contact", "--all-nonparallel"}, 1, "no finite maximum"},
+		{"missing flag", []string{"fit", "--outcome", "warm"}, 2, "--data is required"},
+		{"unknown approach", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89", "--approach", "sideways"}, 1, `unknown approach "sideways"`},
+		{"unknown link", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89", "--link", "tanh"}, 1, `unknown link "tanh"`},
+		{"absent column", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "height"}, 1, `height`},
+		{"nonparallel not predictor", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89", "--nonparallel", "male"}, 1, `nonparallel predictor "male" is not among the predictors`},
+		{"ragged", []string{"fit", "--data", ragged, "--outcome", "y", "--predictors", "a"}, 1, "ragged.csv:3"},
+		{"no file", []string{"fit", "--data", filepath.Join(tmp, "none.csv"), "--outcome", "y"}, 1, "none.csv"},
+		{"unknown command", []string{"frobnicate"}, 2, "unknown command"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			out, errs, code := runCLI(c.args...)
+			if code != c.code {
+				t.Fatalf("exit %d, want %d\nstdout: %s\nstderr: %s", code, c.code, out, errs)
+			}
+			where := out
+			if c.code == 2 || (c.code == 1 && !strings.Contains(out, c.want)) {
+				where = errs
+			}
+			if !strings.Contains(where, c.want) {
+				t.Fatalf("want %q in output\nstdout: %s\nstderr: %s", c.want, out, errs)
+			}
+			if strings.Contains(errs, "goroutine") || strings.Contains(errs, "panic") {
+				t.Fatalf("panic trace: %s", errs)
+			}
+			if c.code == 1 && errs != "" && strings.Count(strings.TrimSpace(errs), "\n") > 0 {
+				t.Fatalf("error must be one line: %q", errs)
+			}
+		})
+	}
+}

@@ -1,0 +1,193 @@
+// Command ordplan runs declarative analysis plans for ordered outcomes:
+// it fits the models a plan lists, applies the plan's decision rules and
+// writes a report. `ordplan fit` fits one model from the command line.
+package main
+
+import (
+	"encoding/json"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"os"
+	"strings"
+
+	"ordplan/render"
+	"ordplan/runner"
+	"ordplan/runner/fit"
+)
+
+// Exit codes.
+const (
+	exitOK    = 0
+	exitFail  = 1 // the input or the analysis failed
+	exitUsage = 2 // the command line is wrong
+)
+
+const usage = `ordplan: analysis plans for ordered outcomes
+
+usage:
+  ordplan run PLAN.yaml [--out DIR] [--previous DIR] [--workers N]
+  ordplan check PLAN.yaml
+  ordplan fit --data FILE --outcome COL --predictors a,b,c [options]
+  ordplan version
+
+Run 'ordplan COMMAND --help' for the options of a command.
+`
+
+func main() {
+	os.Exit(run(os.Args[1:], os.Stdout, os.Stderr))
+}
+
+func run(args []string, stdout, stderr io.Writer) int {
+	if len(args) == 0 {
+		fmt.Fprint(stderr, usage)
+		return exitUsage
+	}
+	switch args[0] {
+	case "fit":
+		return cmdFit(args[1:], stdout, stderr)
+	case "run":
+		return cmdRun(args[1:], stdout, stderr)
+	case "check":
+		return cmdCheck(args[1:], stdout, stderr)
+	case "version":
+		fmt.Fprintln(stdout, "ordplan", runner.Version)
+		return exitOK
+	case "help", "-h", "--help":
+		fmt.Fprint(stdout, usage)
+		return exitOK
+	}
+	fmt.Fprintf(stderr, "ordplan: unknown command %q\n%s", args[0], usage)
+	return exitUsage
+}
+
+// fail prints a one-line message and returns the failure code.
+func fail(stderr io.Writer, err error) int {
+	msg := strings.ReplaceAll(err.Error(), "\n", "; ")
+	fmt.Fprintf(stderr, "ordplan: %s\n", msg)
+	return exitFail
+}
+
+func newFlags(name string, stderr io.Writer) *flag.FlagSet {
+	fs := flag.NewFlagSet("ordplan "+name, flag.ContinueOnError)
+	fs.SetOutput(stderr)
+	return fs
+}
+
+// parseFlags parses and reports whether to stop, with the exit code.
+func parseFlags(fs *flag.FlagSet, args []string) (bool, int) {
+	if err := fs.Parse(args); err != nil {
+		if errors.Is(err, flag.ErrHelp) {
+			return true, exitOK
+		}
+		return true, exitUsage
+	}
+	return false, 0
+}
+
+func cmdFit(args []string, stdout, stderr io.Writer) int {
+	fs := newFlags("fit", stderr)
+	var (
+		dataFile    = fs.String("data", "", "CSV file with a header line (required)")
+		outcome     = fs.String("outcome", "", "outcome column (required)")
+		levels      = fs.String("levels", "", "category labels in order, lowest first (default: integer codes sorted)")
+		predictors  = fs.String("predictors", "", "predictor columns, comma separated")
+		approach    = fs.String("approach", "cumulative", "how categories are compared: cumulative, stage or adjacent")
+		direction   = fs.String("direction", "forward", "stage direction: forward or backward")
+		link        = fs.String("link", "logit", "link: logit, probit, cloglog, loglog or cauchit")
+		nonparallel = fs.String("nonparallel", "", "predictors whose slopes vary freely across equations")
+		allFree     = fs.Bool("all-nonparallel", false, "make every predictor nonparallel")
+		constrained = fs.String("constrained", "", "predictors whose slopes vary by a common factor: a,b or name:a,b;other:c")
+		stereotype  = fs.Bool("stereotype", false, "adjacent model with every predictor in one constrained group")
+		weights     = fs.String("weights", "", "column of frequency weights")
+		offset      = fs.String("offset", "", "column added to x'b in every equation")
+		missing     = fs.String("missing", "drop", "rows with a missing value: drop (counted) or refuse")
+		covariance  = fs.String("covariance", "oim", "standard errors: oim (observed information) or eim (expected)")
+		baseline    = fs.String("baseline", "", "also show an adjacent nonparallel logit as baseline-category logits against this category")
+		level       = fs.Float64("level", 0.95, "confidence level of the intervals")
+		asJSON      = fs.Bool("json", false, "print one JSON object instead of the table")
+	)
+	if stop, code := parseFlags(fs, args); stop {
+		return code
+	}
+	if fs.NArg() > 0 {
+		fmt.Fprintf(stderr, "ordplan fit: unexpected argument %q\n", fs.Arg(0))
+		return exitUsage
+	}
+	for _, req := range []struct{ name, v string }{{"data", *dataFile}, {"outcome", *outcome}} {
+		if req.v == "" {
+			fmt.Fprintf(stderr, "ordplan fit: --%s is required\n", req.name)
+			return exitUsage
+		}
+	}
+	if *missing != "drop" && *missing != "refuse" {
+		fmt.Fprintf(stderr, "ordplan fit: --missing must be drop or refuse, not %q\n", *missing)
+		return exitUsage
+	}
+	if *direction != "forward" && *direction != "backward" {
+		fmt.Fprintf(stderr, "ordplan fit: --direction must be forward or backward, not %q\n", *direction)
+		return exitUsage
+	}
+	s := runner.SingleFit{DataFile: *dataFile, Outcome: *outcome, Levels: runner.SplitList(*levels),
+		Predictors: runner.SplitList(*predictors), Approach: *approach, Backward: *direction == "backward",
+		Link: *link, Nonparallel: runner.SplitList(*nonparallel), Weights: *weights, Offset: *offset,
+		Refuse: *missing == "refuse", Covariance: *covariance}
+	if *allFree {
+		s.Nonparallel = s.Predictors
+	}
+	groups, err := runner.ParseGroups(*constrained)
+	if err != nil {
+		return fail(stderr, fmt.Errorf("--constrained: %w", err))
+	}
+	s.Groups = groups
+	if *stereotype {
+		if len(groups) > 0 || len(s.Nonparallel) > 0 {
+			return fail(stderr, errors.New("--stereotype puts every predictor in one constrained group: do not combine it with --constrained or --nonparallel"))
+		}
+		s.Groups = []runner.Group{{Predictors: s.Predictors}}
+	}
+	res, ds, err := runner.FitOne(s)
+	if err != nil {
+		return fail(stderr, err)
+	}
+	var base *fit.Baseline
+	if *baseline != "" {
+		ref := -1
+		for i, l := range res.Levels {
+			if l == *baseline {
+				ref = i
+			}
+		}
+		if ref < 0 {
+			return fail(stderr, fmt.Errorf("--baseline: %q is not a category of %s (%s)", *baseline, *outcome, strings.Join(res.Levels, ", ")))
+		}
+		if base, err = res.Baseline(ref); err != nil {
+			return fail(stderr, err)
+		}
+	}
+	if *asJSON {
+		rec := runner.Record(res)
+		out := struct {
+			runner.FitRecord
+			Baseline *fit.Baseline `json:"baseline,omitempty"`
+		}{rec, base}
+		enc := json.NewEncoder(stdout)
+		enc.SetIndent("", "  ")
+		if err := enc.Encode(out); err != nil {
+			return fail(stderr, err)
+		}
+	} else {
+		sum := render.DataSummary{File: *dataFile, Outcome: *outcome, RowsRead: ds.RowsRead, RowsUsed: ds.N, DropSummary: ds.DropSummary()}
+		if err := render.FitTable(stdout, res, sum, *level); err != nil {
+			return fail(stderr, err)
+		}
+		if base != nil {
+			render.BaselineTable(stdout, res, base)
+		}
+	}
+	if !res.OK() {
+		return exitFail
+	}
+	return exitOK
+}

@@ -1,0 +1,152 @@
+// Package render writes what people read: the plain-text table of a single
+// fit, and the Markdown and HTML reports of a plan run with their charts.
+package render
+
+import (
+	"fmt"
+	"io"
+	"math"
+	"strings"
+	"text/tabwriter"
+
+	"gonum.org/v1/gonum/stat/distuv"
+
+	"ordplan/runner/fit"
+)
+
+// DataSummary describes the rows behind a fit.
+type DataSummary struct {
+	File        string
+	Outcome     string
+	RowsRead    int
+	RowsUsed    int
+	DropSummary string
+}
+
+// Num formats a number for tables: six significant digits, fixed where
+// that reads well.
+func Num(x float64) string {
+	switch {
+	case math.IsNaN(x):
+		return "n/a"
+	case math.IsInf(x, 1):
+		return "inf"
+	case math.IsInf(x, -1):
+		return "-inf"
+	case x == 0:
+		return "0"
+	}
+	a := math.Abs(x)
+	if a >= 1e-4 && a < 1e6 {
+		s := fmt.Sprintf("%.6g", x)
+		if !strings.ContainsAny(s, "e") {
+			return s
+		}
+	}
+	return fmt.Sprintf("%.4e", x)
+}
+
+// Fixed formats with d decimals.
+func Fixed(x float64, d int) string {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return Num(x)
+	}
+	return fmt.Sprintf("%.*f", d, x)
+}
+
+// PValue formats a p-value.
+func PValue(p float64) string {
+	switch {
+	case math.IsNaN(p):
+		return "n/a"
+	case p < 0.0001:
+		return "<0.0001"
+	}
+	return fmt.Sprintf("%.4f", p)
+}
+
+// ParamLabel adds the category boundary to cutpoint names: "cut1 (SD|D)".
+func ParamLabel(r *fit.Result, name string) string {
+	var m int
+	if _, err := fmt.Sscanf(name, "cut%d", &m); err == nil && m >= 1 && m < len(r.Levels) && name == fmt.Sprintf("cut%d", m) {
+		return fmt.Sprintf("%s (%s|%s)", name, r.Levels[m-1], r.Levels[m])
+	}
+	return name
+}
+
+// FitTable writes the readable summary of one fit.
+func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
+	if level <= 0 || level >= 1 {
+		level = 0.95
+	}
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintf(tw, "Model\t%s\n", r.Name)
+	fmt.Fprintf(tw, "Outcome\t%s: %s (%d categories)\n", ds.Outcome, strings.Join(r.Levels, " < "), r.J)
+	if ds.File != "" {
+		fmt.Fprintf(tw, "Data\t%s: %d rows read, %d used; %s\n", ds.File, ds.RowsRead, ds.RowsUsed, ds.DropSummary)
+	}
+	fmt.Fprintf(tw, "Observations\t%s\n", Num(r.NObs))
+	fmt.Fprintf(tw, "Status\t%s\n", statusLine(r))
+	if r.OK() {
+		fmt.Fprintf(tw, "Log-likelihood\t%s\n", Fixed(r.LogLik, 6))
+		fmt.Fprintf(tw, "Parameters\t%d\n", r.NParams)
+		fmt.Fprintf(tw, "AIC / BIC\t%s / %s\n", Fixed(r.AIC, 3), Fixed(r.BIC, 3))
+		fmt.Fprintf(tw, "Standard errors\t%s\n", covName(r.CovType))
+	}
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+	if !r.OK() {
+		_, err := fmt.Fprintf(w, "\n%s\n", r.Message)
+		return err
+	}
+	z := distuv.UnitNormal.Quantile(0.5 + level/2)
+	fmt.Fprintln(w)
+	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintf(tw, "parameter\testimate\tstd. error\tz\tp\t%g%% interval\t\n", 100*level)
+	for i, n := range r.ParamNames {
+		est, se := r.Estimates[i], r.StdErrors[i]
+		zz := est / se
+		p := 2 * distuv.UnitNormal.Survival(math.Abs(zz))
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t[%s, %s]\t\n", ParamLabel(r, n), Num(est), Num(se), Fixed(zz, 2), PValue(p), Num(est-z*se), Num(est+z*se))
+	}
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+	fmt.Fprintf(w, "\nA positive slope moves the outcome towards higher categories. L_m = cut_m - x'b_m.\n")
+	if r.Status == fit.StatusNegativeProbs {
+		fmt.Fprintf(w, "Warning: %s.\n", r.Message)
+	}
+	return nil
+}
+
+func statusLine(r *fit.Result) string {
+	switch r.Status {
+	case fit.StatusOK, fit.StatusNegativeProbs:
+		return fmt.Sprintf("%s: converged in %d Newton iterations, max |score| %.2g", r.Status, r.Iterations, r.MaxAbsScore)
+	}
+	return string(r.Status)
+}
+
+func covName(c string) string {
+	switch c {
+	case fit.CovEIM:
+		return "expected information"
+	case fit.CovOIM:
+		return "observed information"
+	}
+	return c
+}
+
+// BaselineTable writes the baseline-category form of an adjacent
+// nonparallel logit.
+func BaselineTable(w io.Writer, r *fit.Result, b *fit.Baseline) {
+	fmt.Fprintf(w, "\nBaseline-category form: ln[P(y=j)/P(y=%s)] = cut + x'c (plus sign)\n", r.Levels[b.Ref])
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintf(tw, "parameter\tcategory\testimate\tstd. error\t\n")
+	nc := len(b.Categories)
+	for i, n := range b.Names {
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", n, r.Levels[b.Categories[i%nc]], Num(b.Estimates[i]), Num(b.StdErrors[i]))
+	}
+	tw.Flush()
+}

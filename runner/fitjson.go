@@ -1,0 +1,88 @@
+package runner
+
+import (
+	"math"
+
+	"ordplan/runner/fit"
+)
+
+// FitRecord is the JSON view of one fit. Numbers that do not exist (the
+// log-likelihood of a model with no finite maximum) are null, never a
+// made-up value.
+type FitRecord struct {
+	Model        string               `json:"model"`
+	Approach     string               `json:"approach"`
+	Level        string               `json:"level"`
+	Link         string               `json:"link"`
+	Status       string               `json:"status"`
+	Message      string               `json:"message,omitempty"`
+	Converged    bool                 `json:"converged"`
+	Iterations   int                  `json:"iterations"`
+	MaxAbsScore  *float64             `json:"max_abs_score"`
+	LogLik       *float64             `json:"loglik"`
+	NParams      int                  `json:"n_params"`
+	NObs         float64              `json:"nobs"`
+	AIC          *float64             `json:"aic"`
+	BIC          *float64             `json:"bic"`
+	Cutpoints    []float64            `json:"cutpoints"`
+	Effects      map[string][]float64 `json:"effects"`
+	Estimates    map[string]float64   `json:"estimates"`
+	StdErrors    map[string]float64   `json:"std_errors"`
+	Covariance   string               `json:"covariance,omitempty"`
+	Phi          map[string][]float64 `json:"phi,omitempty"`
+	NegativeRows int                  `json:"rows_with_negative_probabilities"`
+	Condition    *float64             `json:"information_condition"`
+	SupLogLik    *float64             `json:"loglik_supremum,omitempty"`
+	Separation   *fit.Separation      `json:"separation,omitempty"`
+}
+
+func num(x float64) *float64 {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return nil
+	}
+	return &x
+}
+
+// Record builds the JSON view of a fit.
+func Record(r *fit.Result) FitRecord {
+	rec := FitRecord{
+		Model: r.Name, Approach: r.Model.ComparisonName(), Level: r.Model.Level(), Link: r.Model.Link.String(),
+		Status: string(r.Status), Message: r.Message, Converged: r.Converged, Iterations: r.Iterations,
+		MaxAbsScore: num(r.MaxAbsScore), NParams: r.NParams, NObs: r.NObs,
+		NegativeRows: r.NegativeRows, Condition: num(r.Condition), Separation: r.Separation,
+	}
+	if !r.OK() {
+		if r.Status == fit.StatusNoFiniteMaximum {
+			rec.SupLogLik = num(r.SupLogLik)
+		}
+		return rec
+	}
+	rec.LogLik, rec.AIC, rec.BIC = num(r.LogLik), num(r.AIC), num(r.BIC)
+	rec.Cutpoints = r.Cutpoints
+	rec.Effects = map[string][]float64{}
+	for k, p := range r.Predictors {
+		col := make([]float64, len(r.Effects))
+		for m := range r.Effects {
+			col[m] = r.Effects[m][k]
+		}
+		rec.Effects[p] = col
+	}
+	rec.Estimates = map[string]float64{}
+	rec.StdErrors = map[string]float64{}
+	for i, n := range r.ParamNames {
+		rec.Estimates[n] = r.Estimates[i]
+		rec.StdErrors[n] = r.StdErrors[i]
+	}
+	rec.Covariance = r.CovType
+	if len(r.Phi) > 0 {
+		rec.Phi = map[string][]float64{}
+		for g, ph := range r.Phi {
+			name := r.PhiGroups[g]
+			if name == "" {
+				name = "phi"
+			}
+			rec.Phi[name] = ph
+		}
+	}
+	return rec
+}

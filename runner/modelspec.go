@@ -1,0 +1,185 @@
+// Package runner runs analysis plans: it reads the data, fits every model a
+// plan lists (in parallel), runs the tests, applies the decision rules and
+// records every decision. It also builds single models for `ordplan fit`.
+package runner
+
+import (
+	"fmt"
+	"sort"
+	"strings"
+
+	"ordplan/runner/fit"
+)
+
+// Levels of the typology a plan can ask for.
+const (
+	LevelParallel    = "parallel"
+	LevelPartial     = "partial"
+	LevelConstrained = "constrained"
+	LevelNonparallel = "nonparallel"
+	LevelStereotype  = "stereotype"
+)
+
+// Spec says which model to build: the comparison, the stage direction, the
+// link, and the effect structure of each predictor.
+type Spec struct {
+	Approach    string   // cumulative | stage | adjacent
+	Backward    bool     // stage direction
+	Link        string   // logit, probit, cloglog, loglog, cauchit
+	Predictors  []string // all predictors, in order
+	Nonparallel []string // predictors with free slopes
+	Groups      []Group  // constrained predictors by group
+}
+
+// Group is one constraint group: predictors whose slopes share a common
+// factor phi.
+type Group struct {
+	Name       string
+	Predictors []string
+}
+
+// LevelSpec builds the Spec of a typology cell: level parallel,
+// partial (free listed), constrained (groups), nonparallel or stereotype.
+func LevelSpec(approach string, backward bool, link, level string, predictors, free []string, groups []Group) (Spec, error) {
+	s := Spec{Approach: approach, Backward: backward, Link: link, Predictors: predictors}
+	switch level {
+	case LevelParallel:
+	case LevelPartial:
+		s.Nonparallel = free
+	case LevelConstrained:
+		if len(groups) == 0 {
+			groups = []Group{{Predictors: free}}
+		}
+		s.Groups = groups
+	case LevelNonparallel:
+		s.Nonparallel = predictors
+	case LevelStereotype:
+		if approach != "adjacent" {
+			return s, fmt.Errorf("the stereotype model is an adjacent-category model, not %s", approach)
+		}
+		s.Groups = []Group{{Predictors: predictors}}
+	default:
+		return s, fmt.Errorf("unknown level %q (want parallel, partial, constrained, nonparallel or stereotype)", level)
+	}
+	return s, nil
+}
+
+// Model turns a Spec into a fit.Model, checking every name.
+func (s Spec) Model() (fit.Model, error) {
+	var m fit.Model
+	c, err := fit.ParseComparison(s.Approach)
+	if err != nil {
+		return m, err
+	}
+	if s.Backward && c != fit.Stage {
+		return m, fmt.Errorf("the backward direction exists for the stage approach only")
+	}
+	l, err := fit.ParseLink(s.Link)
+	if err != nil {
+		return m, err
+	}
+	m = fit.Model{Comparison: c, Backward: s.Backward, Link: l, Effects: make([]fit.Effect, len(s.Predictors)), Groups: make([]int, len(s.Predictors))}
+	index := map[string]int{}
+	for k, p := range s.Predictors {
+		if _, dup := index[p]; dup {
+			return m, fmt.Errorf("predictor %q is listed twice", p)
+		}
+		index[p] = k
+	}
+	where := map[string]string{}
+	mark := func(p, what string) (int, error) {
+		k, ok := index[p]
+		if !ok {
+			return 0, fmt.Errorf("%s predictor %q is not among the predictors (%s)", what, p, strings.Join(s.Predictors, ", "))
+		}
+		if prev, seen := where[p]; seen {
+			return 0, fmt.Errorf("predictor %q is both %s and %s", p, prev, what)
+		}
+		where[p] = what
+		return k, nil
+	}
+	for _, p := range s.Nonparallel {
+		k, err := mark(p, "nonparallel")
+		if err != nil {
+			return m, err
+		}
+		m.Effects[k] = fit.Nonparallel
+	}
+	for g, grp := range s.Groups {
+		if len(grp.Predictors) == 0 {
+			return m, fmt.Errorf("constraint group %q has no predictors", grp.Name)
+		}
+		m.GroupNames = append(m.GroupNames, grp.Name)
+		for _, p := range grp.Predictors {
+			k, err := mark(p, "constrained")
+			if err != nil {
+				return m, err
+			}
+			m.Effects[k] = fit.Constrained
+			m.Groups[k] = g
+		}
+	}
+	return m, nil
+}
+
+// ParseGroups reads constraint groups written as "name:a,b;other:c" (or
+// "a,b" for a single unnamed group).
+func ParseGroups(s string) ([]Group, error) {
+	var out []Group
+	if strings.TrimSpace(s) == "" {
+		return nil, nil
+	}
+	names := map[string]bool{}
+	for _, part := range strings.Split(s, ";") {
+		part = strings.TrimSpace(part)
+		if part == "" {
+			continue
+		}
+		g := Group{}
+		if i := strings.Index(part, ":"); i >= 0 {
+			g.Name = strings.TrimSpace(part[:i])
+			part = part[i+1:]
+			if g.Name == "" {
+				return nil, fmt.Errorf("constraint group %q has an empty name", part)
+			}
+		}
+		if names[g.Name] {
+			return nil, fmt.Errorf("constraint group %q is given twice", g.Name)
+		}
+		names[g.Name] = true
+		g.Predictors = SplitList(part)
+		if len(g.Predictors) == 0 {
+			return nil, fmt.Errorf("constraint group %q has no predictors", g.Name)
+		}
+		out = append(out, g)
+	}
+	if len(out) > 1 {
+		for i := range out {
+			if out[i].Name == "" {
+				return nil, fmt.Errorf("with several constraint groups every group needs a name (name:a,b;other:c)")
+			}
+		}
+	}
+	return out, nil
+}
+
+// SplitList splits "a, b,c" into its trimmed, non-empty items.
+func SplitList(s string) []string {
+	var out []string
+	for _, p := range strings.Split(s, ",") {
+		if p = strings.TrimSpace(p); p != "" {
+			out = append(out, p)
+		}
+	}
+	return out
+}
+
+// sortedKeys returns the keys of a map in order.
+func sortedKeys[V any](m map[string]V) []string {
+	ks := make([]string, 0, len(m))
+	for k := range m {
+		ks = append(ks, k)
+	}
+	sort.Strings(ks)
+	return ks
+}

@@ -1,0 +1,4 @@
+package runner
+
+// Version of the program, recorded in every run.
+const Version = "0.1.0"
