@@ -1,0 +1,115 @@
+package plan
+
+import (
+	"slices"
+	"strings"
+
+	"gopkg.in/yaml.v3"
+)
+
+// check runs the checks that involve more than one key.
+func (d *decoder) check(p *Plan) {
+	d.checkColumns(p)
+	d.checkDataOptions(p)
+	d.checkApproaches(p)
+	d.checkPartial(p)
+	d.checkGroups(p)
+	d.checkRules(p)
+	if f := p.Report.FocusPredictor; d.given("report.focus_predictor") && d.predictorsKnown(p) && !slices.Contains(p.Predictors, f) {
+		d.errAt("report.focus_predictor", "%s is not a predictor (%s)", quote(f), known(p.Predictors))
+	}
+}
+
+// predictorsKnown reports whether predictors was read well enough for
+// other keys to be checked against it: it is a non-empty list. Bad items
+// are reported and dropped; duplicates are kept once.
+func (d *decoder) predictorsKnown(p *Plan) bool {
+	if len(p.Predictors) == 0 {
+		return false
+	}
+	for _, e := range d.errs {
+		if e.Key == "predictors" {
+			return false
+		}
+	}
+	return true
+}
+
+// itemKey gives the path of the first item of list whose text is value,
+// or the list's own path.
+func (d *decoder) itemKey(list, value string) string {
+	for i := 0; ; i++ {
+		k := itemPath(list, i)
+		n := d.nodes[k]
+		if n == nil {
+			return list
+		}
+		if n.Kind == yaml.ScalarNode && n.Value == value {
+			return k
+		}
+	}
+}
+
+// known lists names for a message, shortening long lists.
+func known(names []string) string {
+	const most = 8
+	if len(names) > most {
+		return "predictors: " + strings.Join(names[:most], ", ") + ", ..."
+	}
+	return "predictors: " + strings.Join(names, ", ")
+}
+
+// checkColumns makes sure no column plays two parts.
+func (d *decoder) checkColumns(p *Plan) {
+	predOK := d.predictorsKnown(p)
+	outcomeAt := map[string]int{}
+	for i, o := range p.Outcomes {
+		key := itemPath("outcomes", i) + ".column"
+		if o.Column == "" || !d.clean(key) {
+			continue
+		}
+		if line, dup := outcomeAt[o.Column]; dup {
+			d.errAt(key, "outcome %s is listed twice (first at line %d)", quote(o.Column), line)
+			continue
+		}
+		outcomeAt[o.Column] = d.line(key)
+		for _, c := range o.Categories {
+			if slices.Contains(p.Data.MissingValues, c) {
+				ck := d.itemKey(itemPath("outcomes", i)+".categories", c)
+				d.errAt(ck, "category %s is also a missing-value marker in data.missing_values", quote(c))
+			}
+		}
+		if predOK && slices.Contains(p.Predictors, o.Column) {
+			pk := d.itemKey("predictors", o.Column)
+			d.errAt(key, "%s is both an outcome and a predictor (%s, line %d)", quote(o.Column), pk, d.line(pk))
+		}
+	}
+	roles := []struct{ key, col string }{
+		{"data.weights", p.Data.Weights},
+		{"data.offset", p.Data.Offset},
+		{"data.cluster", p.Data.Cluster},
+	}
+	for _, r := range roles {
+		if r.col == "" {
+			continue
+		}
+		if _, ok := outcomeAt[r.col]; ok {
+			d.errAt(r.key, "%s is an outcome column", quote(r.col))
+		} else if predOK && slices.Contains(p.Predictors, r.col) {
+			d.errAt(r.key, "%s is also listed in predictors", quote(r.col))
+		}
+	}
+}
+
+// checkDataOptions checks weights and clustering against covariance.
+func (d *decoder) checkDataOptions(p *Plan) {
+	if p.Data.WeightKind == "probability" && p.Data.Weights == "" && d.clean("data.weights") {
+		d.errAt("data.weight_kind", "probability weights need a weights column, and data.weights is not set")
+	}
+	if p.Covariance == "cluster" && p.Data.Cluster == "" && d.clean("data.cluster") {
+		d.errAt("covariance", "cluster covariance needs a cluster column, and data.cluster is not set")
+	}
+	if p.Data.Cluster != "" && p.Covariance != "cluster" && d.clean("covariance") {
+		d.errAt("data.cluster", "the cluster column is used only with covariance: cluster (covariance is %s); set covariance: cluster or remove data.cluster", quote(p.Covariance))
+	}
+}

@@ -1,0 +1,100 @@
+package plan
+
+import "slices"
+
+// checkApproaches checks settings that need a particular approach.
+func (d *decoder) checkApproaches(p *Plan) {
+	mo := p.Models
+	if !d.clean("models.approaches") {
+		return
+	}
+	if mo.HasLevel("stereotype") && !mo.HasApproach("adjacent") {
+		d.errAt(d.itemKey("models.levels", "stereotype"), "the stereotype level needs the adjacent approach, and models.approaches does not include adjacent")
+	}
+	if d.given("models.direction") && !mo.HasApproach("stage") {
+		d.errAt("models.direction", "only the stage approach has a direction, and models.approaches does not include stage")
+	}
+}
+
+// checkPartial checks that the partial set exists exactly when a level
+// uses it, and names real predictors.
+func (d *decoder) checkPartial(p *Plan) {
+	mo := p.Models
+	pa := mo.Partial
+	hasFree := d.given("models.partial.free")
+	hasSelect := d.given("models.partial.select")
+	hasGroups := d.given("models.partial.groups")
+	var users []string
+	for _, l := range []string{"partial", "constrained"} {
+		if mo.HasLevel(l) {
+			users = append(users, l)
+		}
+	}
+	if d.clean("models.levels") {
+		switch {
+		case len(users) > 0 && !hasFree && !hasSelect && d.clean("models.partial"):
+			what := "level " + quote(users[0]) + " needs"
+			if len(users) == 2 {
+				what = "levels " + quote(users[0]) + " and " + quote(users[1]) + " need"
+			}
+			d.errAt("models.partial", "%s a partial set: give models.partial.free (a list of predictors) or models.partial.select", what)
+		case len(users) == 0 && (hasFree || hasSelect || hasGroups):
+			d.errAt("models.partial", "is unused, because models.levels includes neither partial nor constrained")
+		case hasGroups && !mo.HasLevel("constrained"):
+			d.errAt("models.partial.groups", "groups are used only by the constrained level, which models.levels does not include")
+		}
+	}
+	if hasFree && hasSelect {
+		d.errAt("models.partial.select", "give either free or select, not both")
+	}
+	if hasGroups && hasSelect && !hasFree {
+		d.errAt("models.partial.groups", "groups split a listed free set; they cannot be used with select")
+	}
+	if d.predictorsKnown(p) {
+		for _, f := range pa.Free {
+			if !slices.Contains(p.Predictors, f) {
+				d.errAt(d.itemKey("models.partial.free", f), "%s is not a predictor (%s)", quote(f), known(p.Predictors))
+			}
+		}
+	}
+}
+
+// checkGroups checks that the constraint groups split the free set:
+// every free predictor in exactly one group, names given and distinct.
+func (d *decoder) checkGroups(p *Plan) {
+	const path = "models.partial.groups"
+	pa := p.Models.Partial
+	if !d.given(path) || !d.clean(path) || !d.given("models.partial.free") || !d.clean("models.partial.free") || !d.predictorsKnown(p) {
+		return
+	}
+	nameLine := map[string]int{}
+	groupOf := map[string]string{}
+	for i, g := range pa.Groups {
+		gp := itemPath(path, i)
+		if g.Name == "" && len(pa.Groups) > 1 {
+			d.errAt(gp, "a name is required when there are several groups")
+		} else if line, dup := nameLine[g.Name]; dup && g.Name != "" {
+			d.errAt(gp+".name", "group name %s is used twice (first at line %d)", quote(g.Name), line)
+		} else {
+			nameLine[g.Name] = d.line(gp + ".name")
+		}
+		for _, x := range g.Predictors {
+			key := d.itemKey(gp+".predictors", x)
+			switch other, dup := groupOf[x]; {
+			case !slices.Contains(p.Predictors, x):
+				d.errAt(key, "%s is not a predictor (%s)", quote(x), known(p.Predictors))
+			case !slices.Contains(pa.Free, x):
+				d.errAt(key, "%s is not in models.partial.free, so it cannot be constrained", quote(x))
+			case dup:
+				d.errAt(key, "%s is already in group %s", quote(x), quote(other))
+			default:
+				groupOf[x] = g.Name
+			}
+		}
+	}
+	for _, f := range pa.Free {
+		if _, ok := groupOf[f]; !ok {
+			d.errAt(path, "free predictor %s is in no group", quote(f))
+		}
+	}
+}

@@ -1,0 +1,91 @@
+package plan
+
+import (
+	"path/filepath"
+
+	"gopkg.in/yaml.v3"
+)
+
+func (d *decoder) dataDefaults(data *Data) {
+	data.Missing = "drop"
+	data.WeightKind = "frequency"
+}
+
+// decodeData reads the data section.
+func (d *decoder) decodeData(n *yaml.Node, data *Data) {
+	d.dataDefaults(data)
+	m := d.mapping(n, "data", dataKeys)
+	if m == nil {
+		return
+	}
+	if v := m.required("file"); v != nil {
+		if s, ok := d.name(v, "data.file"); ok {
+			data.File = s
+		}
+	}
+	m.word("missing", "missing-data mode", missingWords, &data.Missing)
+	if v := m.get("missing_values"); v != nil {
+		data.MissingValues, _ = d.readList(v, "data.missing_values", d.token)
+	}
+	m.name("weights", &data.Weights)
+	m.word("weight_kind", "weight kind", weightKindWords, &data.WeightKind)
+	m.name("offset", &data.Offset)
+	m.name("cluster", &data.Cluster)
+}
+
+// resolveDataPath places the data file relative to the plan's directory.
+func resolveDataPath(dir, file string) string {
+	if file == "" {
+		return ""
+	}
+	f := filepath.FromSlash(file)
+	if filepath.IsAbs(f) {
+		return filepath.Clean(f)
+	}
+	return filepath.Join(dir, f)
+}
+
+// decodeOutcomes reads the list of outcomes.
+func (d *decoder) decodeOutcomes(n *yaml.Node) []Outcome {
+	if !d.nonEmpty(n, "outcomes", "outcome") {
+		return nil
+	}
+	items, ok := d.list(n, "outcomes")
+	if !ok {
+		return nil
+	}
+	out := make([]Outcome, len(items)) // bad items stay, so indexes match the plan
+	for i, it := range items {
+		path := itemPath("outcomes", i)
+		o := &out[i]
+		m := d.mapping(it, path, outcomeKeys)
+		if m == nil {
+			continue
+		}
+		if m.node == nil {
+			d.errorf(it, path, "want a mapping with keys column, categories, label; got null")
+			continue
+		}
+		if v := m.required("column"); v != nil {
+			o.Column, _ = d.name(v, m.at("column"))
+		}
+		if v := m.get("categories"); v != nil {
+			o.Categories = d.categories(v, m.at("categories"))
+		}
+		m.text("label", &o.Label)
+	}
+	return out
+}
+
+// categories reads an ordered list of at least two distinct labels.
+func (d *decoder) categories(n *yaml.Node, path string) []string {
+	list, ok := d.names(n, path)
+	if !ok || !d.clean(path) {
+		return nil
+	}
+	if len(list) < 2 {
+		d.errorf(deref(n), path, "an ordinal outcome needs at least 2 categories, got %d", len(list))
+		return nil
+	}
+	return list
+}

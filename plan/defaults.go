@@ -1,0 +1,27 @@
+package plan
+
+// applyDefaults fills in the defaults that depend on more than one
+// section. Simple defaults are set while decoding.
+func (d *decoder) applyDefaults(p *Plan) {
+	p.Data.Path = resolveDataPath(p.Dir, p.Data.File)
+	for i := range p.Outcomes {
+		if p.Outcomes[i].Label == "" {
+			p.Outcomes[i].Label = p.Outcomes[i].Column
+		}
+	}
+	if !d.given("report.title") {
+		p.Report.Title = p.Title
+	}
+	if p.Report.FocusPredictor == "" && !d.given("report.focus_predictor") && len(p.Predictors) > 0 {
+		p.Report.FocusPredictor = p.Predictors[0]
+	}
+	for i := range p.Rules {
+		if p.Rules[i].Kind == RuleRejectIfTestRejects && p.Rules[i].Alpha == 0 {
+			p.Rules[i].Alpha = p.Tests.Alpha
+		}
+	}
+	pa := &p.Models.Partial
+	if p.Models.HasLevel("constrained") && pa.Free != nil && !d.given("models.partial.groups") {
+		pa.Groups = []Group{{Name: "", Predictors: append([]string(nil), pa.Free...)}}
+	}
+}

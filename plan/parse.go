@@ -1,0 +1,130 @@
+package plan
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"regexp"
+	"strconv"
+
+	"gopkg.in/yaml.v3"
+)
+
+// Load reads the plan file at path, checks it and applies defaults.
+func Load(path string) (*Plan, error) {
+	src, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("cannot read plan: %w", err)
+	}
+	return Parse(src, path)
+}
+
+// Parse checks the plan in src, read from path, and applies defaults. On
+// failure the error is an Errors value listing every problem found.
+func Parse(src []byte, path string) (*Plan, error) {
+	d := newDecoder(path)
+	root, perr := readYAML(src, path)
+	if perr != nil {
+		return nil, Errors{perr}
+	}
+	sum := sha256.Sum256(src)
+	p := &Plan{Path: path, Dir: filepath.Dir(path), Hash: hex.EncodeToString(sum[:])}
+	d.decodePlan(root, p)
+	d.applyDefaults(p)
+	d.check(p)
+	if len(d.errs) > 0 {
+		sortErrors(d.errs)
+		return nil, d.errs
+	}
+	return p, nil
+}
+
+var yamlLine = regexp.MustCompile(`^yaml: line (\d+): (.*)$`)
+
+// readYAML parses src as exactly one YAML document and gives its root node.
+func readYAML(src []byte, path string) (root *yaml.Node, e *Error) {
+	defer func() {
+		if r := recover(); r != nil {
+			root, e = nil, &Error{File: path, Msg: fmt.Sprintf("not valid YAML (parser failed: %v)", r)}
+		}
+	}()
+	dec := yaml.NewDecoder(bytes.NewReader(src))
+	var doc yaml.Node
+	if err := dec.Decode(&doc); err != nil {
+		if errors.Is(err, io.EOF) {
+			return nil, &Error{File: path, Msg: "plan file is empty"}
+		}
+		return nil, syntaxError(path, err)
+	}
+	var next yaml.Node
+	switch err := dec.Decode(&next); {
+	case errors.Is(err, io.EOF):
+	case err != nil:
+		return nil, syntaxError(path, err)
+	default:
+		return nil, &Error{File: path, Line: next.Line, Col: next.Column,
+			Msg: "a plan file holds one YAML document, but a second one starts here"}
+	}
+	if len(doc.Content) == 0 || isNull(doc.Content[0]) {
+		return nil, &Error{File: path, Msg: "plan file is empty"}
+	}
+	return doc.Content[0], nil
+}
+
+func syntaxError(path string, err error) *Error {
+	msg := err.Error()
+	e := &Error{File: path}
+	if m := yamlLine.FindStringSubmatch(msg); m != nil {
+		e.Line, _ = strconv.Atoi(m[1])
+		msg = m[2]
+	} else if len(msg) > 6 && msg[:6] == "yaml: " {
+		msg = msg[6:]
+	}
+	e.Msg = "not valid YAML: " + msg
+	return e
+}
+
+// decodePlan reads the top-level mapping, applying the simple defaults.
+func (d *decoder) decodePlan(root *yaml.Node, p *Plan) {
+	d.record("", root)
+	p.Seed = 1
+	p.Covariance = "oim"
+	m := d.mapping(root, "", topKeys)
+	if m == nil {
+		return
+	}
+	if v := m.required("version"); v != nil {
+		if n, ok := d.integer(v, "version"); ok && n != 1 {
+			d.errorf(deref(v), "version", "unsupported plan version %d (want 1)", n)
+		}
+	}
+	m.text("title", &p.Title)
+	if v := m.get("seed"); v != nil {
+		if s, ok := d.unsigned(v, "seed"); ok {
+			p.Seed = s
+		}
+	}
+	if v := m.required("data"); v != nil {
+		d.decodeData(v, &p.Data)
+	} else {
+		d.dataDefaults(&p.Data)
+	}
+	if v := m.required("outcomes"); v != nil {
+		p.Outcomes = d.decodeOutcomes(v)
+	}
+	if v := m.required("predictors"); v != nil && d.nonEmpty(v, "predictors", "predictor") {
+		p.Predictors, _ = d.names(v, "predictors")
+	}
+	d.decodeModels(m.get("models"), &p.Models)
+	d.decodeTests(m.get("tests"), &p.Tests)
+	if v := m.required("rules"); v != nil {
+		p.Rules = d.decodeRules(v)
+	}
+	m.word("covariance", "covariance", covarianceWords, &p.Covariance)
+	d.decodeReport(m.get("report"), &p.Report)
+}

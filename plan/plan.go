@@ -1,0 +1,118 @@
+// Package plan reads, checks and resolves ordplan analysis plans.
+//
+// A plan is a YAML file that names the data, the ordinal outcomes, the
+// predictors, the family of models to fit, the parallel-lines tests to run,
+// the rules that pick one model, and how to report the result. Load and
+// Parse return a fully resolved Plan (defaults applied) or an Errors value
+// listing every problem found, each with file, line, column and key path.
+//
+// Key paths use dots for mapping keys and zero-based [i] for list items,
+// for example "models.partial.free[1]" or "rules[2].choose.by".
+package plan
+
+import "slices"
+
+// Plan is a resolved analysis plan.
+type Plan struct {
+	Path       string // file it was read from
+	Dir        string // directory of the plan file (data paths resolve against it)
+	Hash       string // hex SHA-256 of the plan file bytes
+	Title      string
+	Seed       uint64 // default 1
+	Data       Data
+	Outcomes   []Outcome
+	Predictors []string
+	Models     Models
+	Tests      Tests
+	Rules      []Rule
+	Report     Report
+	Covariance string // "oim" (default), "eim", "robust", "cluster"
+}
+
+// Data says where the observations are and how to read them.
+type Data struct {
+	File          string   // required; as written in the plan
+	Path          string   // File resolved against Plan.Dir
+	Missing       string   // "drop" (default) or "refuse"
+	MissingValues []string // nil = reader default; empty = nothing counts as missing
+	Weights       string   // column, optional
+	WeightKind    string   // "frequency" (default) or "probability"
+	Offset        string   // column, optional
+	Cluster       string   // column, optional
+}
+
+// Outcome is one ordinal response column.
+type Outcome struct {
+	Column     string   // required
+	Categories []string // optional order, lowest first; nil = take from data
+	Label      string   // human name; defaults to Column
+}
+
+// Models describes the grid of models to fit.
+type Models struct {
+	Approaches []string // subset of cumulative, stage, adjacent; default all three
+	Direction  string   // stage direction: forward (default) | backward
+	Levels     []string // subset of parallel, partial, constrained, nonparallel, stereotype
+	Links      []string // default [logit]
+	Partial    Partial
+}
+
+// Partial says which predictors leave the parallel structure in the
+// partial and constrained levels.
+type Partial struct {
+	Free   []string // predictors made nonparallel (partial) or constrained (constrained)
+	Select *Select  // or chosen by stepwise selection
+	Groups []Group  // constraint groups for constrained models
+}
+
+// Select configures stepwise selection of the partial set.
+type Select struct {
+	Method string  // "stepwise"
+	Alpha  float64 // default 0.05, 0 < Alpha < 1
+	Test   string  // "wald" (default) | "lr"
+}
+
+// Group is a named set of constrained predictors sharing one factor.
+type Group struct {
+	Name       string
+	Predictors []string
+}
+
+// Tests lists the parallel-lines tests to run.
+type Tests struct {
+	ParallelLines []string // subset of brant, lr, score, wald, wolfe_gould
+	Alpha         float64  // default 0.05
+}
+
+// Rule is one step of model selection, applied in plan order.
+type Rule struct {
+	Line   int     // line of the rule in the plan
+	Kind   string  // one of the Rule* kinds
+	Test   string  // reject_if_test_rejects: lr | wald | score | brant (default lr)
+	Alpha  float64 // reject_if_test_rejects (default Tests.Alpha)
+	By     string  // choose, prefer_simpler: aic | bic (default bic)
+	Margin float64 // choose (default 0), prefer_simpler (default 2); >= 0
+}
+
+// Rule kinds.
+const (
+	RuleRejectUnconverged           = "reject_unconverged"
+	RuleRejectNegativeProbabilities = "reject_negative_probabilities"
+	RuleRejectIfTestRejects         = "reject_if_test_rejects"
+	RuleChoose                      = "choose"
+	RulePreferSimpler               = "prefer_simpler"
+)
+
+// Report controls the written report.
+type Report struct {
+	Title           string  // defaults to Plan.Title
+	FocusPredictor  string  // x axis of the predicted-probability chart (default: first predictor)
+	ConfidenceLevel float64 // default 0.95, in (0,1)
+	Timestamp       bool    // default false: no timestamps in the report
+}
+
+// HasApproach reports whether the plan fits models of the given approach.
+func (m Models) HasApproach(a string) bool { return slices.Contains(m.Approaches, a) }
+
+// HasLevel reports whether the plan fits models of the given level.
+func (m Models) HasLevel(l string) bool { return slices.Contains(m.Levels, l) }

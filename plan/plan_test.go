@@ -1,0 +1,465 @@
+package plan
+
+import (
+	"bytes"
+	"errors"
+	"os"
+	"path/filepath"
+	"reflect"
+	"strings"
+	"testing"
+)
+
+// base is a small valid plan; bad plans below are variations of it.
+const base = `version: 1
+data:
+  file: d.csv
+outcomes:
+  - column: y
+predictors: [a, b, c]
+models:
+  partial:
+    free: [a]
+rules:
+  - choose: {by: aic}
+`
+
+func TestExamplePlan(t *testing.T) {
+	path := filepath.Join("..", "plans", "example.yaml")
+	p, err := Load(path)
+	if err != nil {
+		t.Fatalf("Load: %v", err)
+	}
+	src, _ := os.ReadFile(path)
+	if len(p.Hash) != 64 || p.Hash == strings.Repeat("0", 64) {
+		t.Errorf("Hash = %q", p.Hash)
+	}
+	if p2, _ := Parse(src, path); p2 == nil || p2.Hash != p.Hash {
+		t.Errorf("Parse and Load disagree on the hash")
+	}
+	check := func(name string, got, want any) {
+		t.Helper()
+		if !reflect.DeepEqual(got, want) {
+			t.Errorf("%s = %#v, want %#v", name, got, want)
+		}
+	}
+	check("Path", p.Path, path)
+	check("Dir", p.Dir, filepath.Join("..", "plans"))
+	check("Title", p.Title, "Cycling safety after the quiet-streets pilot")
+	check("Seed", p.Seed, uint64(20261202))
+	check("Data", p.Data, Data{
+		File:          "data/quietstreets.csv",
+		Path:          filepath.Join("..", "plans", "data", "quietstreets.csv"),
+		Missing:       "drop",
+		MissingValues: []string{"", "NA"},
+		WeightKind:    "frequency",
+	})
+	check("Outcomes", p.Outcomes, []Outcome{{
+		Column:     "safety",
+		Categories: []string{"very_unsafe", "unsafe", "neutral", "safe", "very_safe"},
+		Label:      "Feels safe cycling on own street",
+	}})
+	check("Predictors", p.Predictors, []string{"pilot", "female", "age", "child_home", "years_resident", "cyclist"})
+	check("Models", p.Models, Models{
+		Approaches: []string{"cumulative", "stage", "adjacent"},
+		Direction:  "forward",
+		Levels:     []string{"parallel", "partial", "constrained", "nonparallel", "stereotype"},
+		Links:      []string{"logit"},
+		Partial: Partial{
+			Free:   []string{"pilot", "female"},
+			Groups: []Group{{Name: "g1", Predictors: []string{"pilot", "female"}}},
+		},
+	})
+	check("Tests", p.Tests, Tests{ParallelLines: []string{"brant", "lr", "score", "wald", "wolfe_gould"}, Alpha: 0.05})
+	wantKinds := []string{RuleRejectUnconverged, RuleRejectNegativeProbabilities, RuleRejectIfTestRejects, RulePreferSimpler}
+	if len(p.Rules) != len(wantKinds) {
+		t.Fatalf("got %d rules, want %d", len(p.Rules), len(wantKinds))
+	}
+	for i, k := range wantKinds {
+		check("Rules kind", p.Rules[i].Kind, k)
+		if p.Rules[i].Line == 0 {
+			t.Errorf("rule %d has no line", i)
+		}
+	}
+	check("rule 2", p.Rules[2], Rule{Line: p.Rules[2].Line, Kind: RuleRejectIfTestRejects, Test: "lr", Alpha: 0.05})
+	check("rule 3", p.Rules[3], Rule{Line: p.Rules[3].Line, Kind: RulePreferSimpler, By: "bic", Margin: 2})
+	check("Covariance", p.Covariance, "oim")
+	check("Report", p.Report, Report{
+		Title:           "Cycling safety after the quiet-streets pilot",
+		FocusPredictor:  "age",
+		ConfidenceLevel: 0.95,
+	})
+}
+
+func TestDefaults(t *testing.T) {
+	src := base + "title: Small\ntests: {alpha: 0.1}\n"
+	src = strings.Replace(src, "  - choose: {by: aic}\n", "  - reject_if_test_rejects: true\n  - prefer_simpler: true\n", 1)
+	p, err := Parse([]byte(src), filepath.Join("plans", "small.yaml"))
+	if err != nil {
+		t.Fatalf("Parse: %v", err)
+	}
+	check := func(name string, got, want any) {
+		t.Helper()
+		if !reflect.DeepEqual(got, want) {
+			t.Errorf("%s = %#v, want %#v", name, got, want)
+		}
+	}
+	check("Seed", p.Seed, uint64(1))
+	check("Covariance", p.Covariance, "oim")
+	check("Data", p.Data, Data{File: "d.csv", Path: filepath.Join("plans", "d.csv"), Missing: "drop", WeightKind: "frequency"})
+	check("Outcomes", p.Outcomes, []Outcome{{Column: "y", Label: "y"}})
+	check("Approaches", p.Models.Approaches, []string{"cumulative", "stage", "adjacent"})
+	check("Direction", p.Models.Direction, "forward")
+	check("Levels", p.Models.Levels, []string{"parallel", "partial", "constrained", "nonparallel"})
+	check("Links", p.Models.Links, []string{"logit"})
+	check("Groups", p.Models.Partial.Groups, []Group{{Name: "", Predictors: []string{"a"}}})
+	check("Select", p.Models.Partial.Select, (*Select)(nil))
+	check("Tests", p.Tests, Tests{ParallelLines: []string{"brant", "lr", "score", "wald"}, Alpha: 0.1})
+	check("Rules", p.Rules, []Rule{
+		{Line: 11, Kind: RuleRejectIfTestRejects, Test: "lr", Alpha: 0.1},
+		{Line: 12, Kind: RulePreferSimpler, By: "bic", Margin: 2},
+	})
+	check("Report", p.Report, Report{Title: "Small", FocusPredictor: "a", ConfidenceLevel: 0.95})
+
+	// choose keeps a zero margin; select fills its defaults; an empty
+	// missing_values list differs from an absent one.
+	src = strings.Replace(base, "free: [a]", "select: {method: stepwise}", 1) +
+		"seed: 0\nreport: {title: Other}\n"
+	src = strings.Replace(src, "  file: d.csv\n", "  file: /abs/d.csv\n  missing_values: []\n", 1)
+	p, err = Parse([]byte(src), "x.yaml")
+	if err != nil {
+		t.Fatalf("Parse: %v", err)
+	}
+	check("Seed", p.Seed, uint64(0))
+	check("Data.Path", p.Data.Path, filepath.FromSlash("/abs/d.csv"))
+	check("MissingValues", p.Data.MissingValues, []string{})
+	check("Select", p.Models.Partial.Select, &Select{Method: "stepwise", Alpha: 0.05, Test: "wald"})
+	check("Groups", p.Models.Partial.Groups, []Group(nil))
+	check("Rules", p.Rules, []Rule{{Line: 12, Kind: RuleChoose, By: "aic", Margin: 0}})
+	check("Report.Title", p.Report.Title, "Other")
+}
+
+func TestBadPlans(t *testing.T) {
+	// Each case replaces one piece of base (old -> new) or, with old
+	// empty, appends new; want lists substrings the error must contain.
+	const tail = "models:\n  partial:\n    free: [a]\nrules:\n  - choose: {by: aic}\n"
+	cases := []struct {
+		name     string
+		old, new string
+		want     []string
+	}{
+		{"unknown criterion", "{by: aic}", "{by: aicc}",
+			[]string{`bad.yaml:11:18: rules[0].choose.by: unknown criterion "aicc" (want aic or bic)`}},
+		{"criterion case", "{by: aic}", "{by: AIC}",
+			[]string{`rules[0].choose.by: unknown criterion "AIC" (want aic or bic); did you mean "aic"?`}},
+		{"unknown top key", "", "colour: blue\n",
+			[]string{`bad.yaml:12:1: colour: unknown key "colour" (allowed: version, title, seed, data,`}},
+		{"unknown nested key", "  file: d.csv\n", "  file: d.csv\n  sep: ';'\n",
+			[]string{`bad.yaml:4:3: data.sep: unknown key "sep" (allowed: file, missing, missing_values,`}},
+		{"duplicate key", "", "title: a\ntitle: b\n",
+			[]string{`bad.yaml:13:1: title: key is given twice (first at line 12)`}},
+		{"missing version", "version: 1\n", "",
+			[]string{`bad.yaml:1:1: version: required key is missing`}},
+		{"null version", "version: 1", "version: ~",
+			[]string{`bad.yaml:1:10: version: required; null does not count as a value`}},
+		{"wrong version", "version: 1", "version: 2",
+			[]string{`bad.yaml:1:10: version: unsupported plan version 2 (want 1)`}},
+		{"version as text", "version: 1", "version: one",
+			[]string{`version: want a whole number, got string "one"`}},
+		{"missing data file", "  file: d.csv\n", "  missing: drop\n",
+			[]string{`bad.yaml:3:3: data.file: required key is missing`}},
+		{"missing outcomes", "outcomes:\n  - column: y\n", "",
+			[]string{`outcomes: required key is missing`}},
+		{"missing predictors", "predictors: [a, b, c]\n", "",
+			[]string{`predictors: required key is missing`}},
+		{"empty predictors", "predictors: [a, b, c]", "predictors: []",
+			[]string{`bad.yaml:6:13: predictors: list is empty; give at least one predictor`}},
+		{"missing rules", "rules:\n  - choose: {by: aic}\n", "",
+			[]string{`rules: required key is missing`}},
+		{"string for list", "predictors: [a, b, c]", "predictors: a",
+			[]string{`bad.yaml:6:13: predictors: want a list, got string "a"; write [a] for a list of one`}},
+		{"list for string", "  file: d.csv", "  file: [d.csv]",
+			[]string{`bad.yaml:3:9: data.file: want a name, got a list`}},
+		{"mapping for list", "predictors: [a, b, c]", "predictors: {a: 1}",
+			[]string{`predictors: want a list, got a mapping`}},
+		{"duplicate predictor", "predictors: [a, b, c]", "predictors: [a, b, a]",
+			[]string{`bad.yaml:6:20: predictors[2]: "a" is listed twice (first at line 6)`}},
+		{"empty name", "predictors: [a, b, c]", `predictors: [a, "", c]`,
+			[]string{`predictors[1]: name is empty`}},
+		{"unknown approach", "models:\n", "models:\n  approaches: [cumulative, ordinal]\n",
+			[]string{`bad.yaml:8:28: models.approaches[1]: unknown approach "ordinal" (want cumulative, stage or adjacent)`}},
+		{"unknown level", "models:\n", "models:\n  levels: [parallel, partial, full]\n",
+			[]string{`models.levels[2]: unknown level "full" (want parallel, partial, constrained, nonparallel or stereotype)`}},
+		{"unknown link", "models:\n", "models:\n  links: [logit, tobit]\n",
+			[]string{`models.links[1]: unknown link "tobit" (want logit, probit, cloglog, loglog or cauchit)`}},
+		{"duplicate link", "models:\n", "models:\n  links: [logit, probit, logit]\n",
+			[]string{`bad.yaml:8:26: models.links[2]: "logit" is listed twice (first at line 8)`}},
+		{"unknown direction", "models:\n", "models:\n  direction: sideways\n",
+			[]string{`models.direction: unknown direction "sideways" (want forward or backward)`}},
+		{"direction without stage", "models:\n", "models:\n  approaches: [cumulative]\n  direction: backward\n",
+			[]string{`bad.yaml:9:14: models.direction: only the stage approach has a direction`}},
+		{"unknown test", "", "tests:\n  parallel_lines: [brant, chow]\n",
+			[]string{`bad.yaml:13:27: tests.parallel_lines[1]: unknown parallel-lines test "chow" (want brant, lr, score, wald or wolfe_gould)`}},
+		{"tests alpha range", "", "tests: {alpha: 1.5}\n",
+			[]string{`tests.alpha: 1.5 is out of range (want a number strictly between 0 and 1)`}},
+		{"alpha not finite", "", "tests: {alpha: .nan}\n",
+			[]string{`tests.alpha: want a finite number, got .nan`}},
+		{"unknown covariance", "", "covariance: sandwich\n",
+			[]string{`bad.yaml:12:13: covariance: unknown covariance "sandwich" (want oim, eim, robust or cluster)`}},
+		{"cluster covariance without cluster", "", "covariance: cluster\n",
+			[]string{`bad.yaml:12:13: covariance: cluster covariance needs a cluster column, and data.cluster is not set`}},
+		{"cluster column without cluster covariance", "  file: d.csv\n", "  file: d.csv\n  cluster: street\n",
+			[]string{`bad.yaml:4:12: data.cluster: the cluster column is used only with covariance: cluster`}},
+		{"unknown weight kind", "  file: d.csv\n", "  file: d.csv\n  weight_kind: survey\n",
+			[]string{`data.weight_kind: unknown weight kind "survey" (want frequency or probability)`}},
+		{"probability weights without weights", "  file: d.csv\n", "  file: d.csv\n  weight_kind: probability\n",
+			[]string{`bad.yaml:4:16: data.weight_kind: probability weights need a weights column`}},
+		{"unknown missing mode", "  file: d.csv\n", "  file: d.csv\n  missing: impute\n",
+			[]string{`data.missing: unknown missing-data mode "impute" (want drop or refuse)`}},
+		{"outcome also predictor", "predictors: [a, b, c]", "predictors: [a, y, c]",
+			[]string{`bad.yaml:5:13: outcomes[0].column: "y" is both an outcome and a predictor (predictors[1], line 6)`}},
+		{"weights is a predictor", "  file: d.csv\n", "  file: d.csv\n  weights: b\n",
+			[]string{`data.weights: "b" is also listed in predictors`}},
+		{"one category", "  - column: y\n", "  - column: y\n    categories: [low]\n",
+			[]string{`bad.yaml:6:17: outcomes[0].categories: an ordinal outcome needs at least 2 categories, got 1`}},
+		{"duplicate category", "  - column: y\n", "  - column: y\n    categories: [low, mid, low]\n",
+			[]string{`outcomes[0].categories[2]: "low" is listed twice (first at line 6)`}},
+		{"category is a missing marker", "  file: d.csv\noutcomes:\n  - column: y\n", "  file: d.csv\n  missing_values: [NA]\noutcomes:\n  - column: y\n    categories: [low, NA, high]\n",
+			[]string{`bad.yaml:7:23: outcomes[0].categories[1]: category "NA" is also a missing-value marker in data.missing_values`}},
+		{"duplicate outcome", "  - column: y\n", "  - column: y\n  - column: y\n",
+			[]string{`bad.yaml:6:13: outcomes[1].column: outcome "y" is listed twice (first at line 5)`}},
+		{"outcome without column", "  - column: y\n", "  - label: Y\n",
+			[]string{`bad.yaml:5:5: outcomes[0].column: required key is missing`}},
+		{"free not a predictor", "free: [a]", "free: [a, z]",
+			[]string{`bad.yaml:9:15: models.partial.free[1]: "z" is not a predictor (predictors: a, b, c)`}},
+		{"no partial set", "models:\n  partial:\n    free: [a]\n", "",
+			[]string{`models.partial: levels "partial" and "constrained" need a partial set: give models.partial.free`}},
+		{"no partial set for constrained", "models:\n  partial:\n    free: [a]\n", "models:\n  levels: [parallel, constrained]\n",
+			[]string{`bad.yaml:8:3: models.partial: level "constrained" needs a partial set`}},
+		{"free and select", "    free: [a]\n", "    free: [a]\n    select: {method: stepwise}\n",
+			[]string{`bad.yaml:10:13: models.partial.select: give either free or select, not both`}},
+		{"partial unused", "models:\n", "models:\n  levels: [parallel, nonparallel]\n",
+			[]string{`bad.yaml:10:5: models.partial: is unused, because models.levels includes neither partial nor constrained`}},
+		{"select method", "free: [a]", "select: {method: lasso}",
+			[]string{`models.partial.select.method: unknown selection method "lasso" (want stepwise)`}},
+		{"select alpha", "free: [a]", "select: {alpha: 0}",
+			[]string{`models.partial.select.alpha: 0 is out of range`}},
+		{"select test", "free: [a]", "select: {test: score}",
+			[]string{`models.partial.select.test: unknown selection test "score" (want wald or lr)`}},
+		{"group predictor not a predictor", "    free: [a]\n", "    free: [a]\n    groups:\n      - name: g\n        predictors: [a, q]\n",
+			[]string{`bad.yaml:12:25: models.partial.groups[0].predictors[1]: "q" is not a predictor`}},
+		{"group predictor not free", "    free: [a]\n", "    free: [a]\n    groups:\n      - name: g\n        predictors: [a, b]\n",
+			[]string{`models.partial.groups[0].predictors[1]: "b" is not in models.partial.free`}},
+		{"free predictor in no group", "    free: [a]\n", "    free: [a, b]\n    groups:\n      - name: g\n        predictors: [a]\n",
+			[]string{`bad.yaml:11:7: models.partial.groups: free predictor "b" is in no group`}},
+		{"predictor in two groups", "    free: [a]\n", "    free: [a, b]\n    groups:\n      - {name: g, predictors: [a, b]}\n      - {name: h, predictors: [b]}\n",
+			[]string{`bad.yaml:12:32: models.partial.groups[1].predictors[0]: "b" is already in group "g"`}},
+		{"unnamed groups", "    free: [a]\n", "    free: [a, b]\n    groups:\n      - {predictors: [a]}\n      - {predictors: [b]}\n",
+			[]string{`models.partial.groups[0]: a name is required when there are several groups`}},
+		{"duplicate group names", "    free: [a]\n", "    free: [a, b]\n    groups:\n      - {name: g, predictors: [a]}\n      - {name: g, predictors: [b]}\n",
+			[]string{`bad.yaml:12:16: models.partial.groups[1].name: group name "g" is used twice (first at line 11)`}},
+		{"groups unused", "models:\n  partial:\n    free: [a]\n", "models:\n  levels: [partial]\n  partial:\n    free: [a]\n    groups: [{name: g, predictors: [a]}]\n",
+			[]string{`models.partial.groups: groups are used only by the constrained level`}},
+		{"groups with select", "free: [a]", "select: {test: lr}\n    groups: [{name: g, predictors: [a]}]",
+			[]string{`models.partial.groups: groups split a listed free set; they cannot be used with select`}},
+		{"stereotype without adjacent", "models:\n", "models:\n  approaches: [cumulative, stage]\n  levels: [parallel, partial, stereotype]\n",
+			[]string{`bad.yaml:9:31: models.levels[2]: the stereotype level needs the adjacent approach`}},
+		{"unknown rule kind", "  - choose: {by: aic}\n", "  - reject_everything: true\n  - choose: {by: aic}\n",
+			[]string{`bad.yaml:11:5: rules[0]: unknown rule kind "reject_everything" (want reject_unconverged, reject_negative_probabilities, reject_if_test_rejects, choose or prefer_simpler)`}},
+		{"rule as string", "  - choose: {by: aic}\n", "  - reject_unconverged\n  - choose: {by: aic}\n",
+			[]string{`bad.yaml:11:5: rules[0]: want a one-key mapping naming the rule kind`, `got string "reject_unconverged"`}},
+		{"rule with two keys", "  - choose: {by: aic}\n", "  - choose: {by: aic}\n    reject_unconverged: true\n",
+			[]string{`rules[0]: want a one-key mapping naming the rule kind`, `got a mapping with 2 keys`}},
+		{"rule false", "  - choose: {by: aic}\n", "  - reject_unconverged: false\n  - choose: {by: aic}\n",
+			[]string{`bad.yaml:11:25: rules[0].reject_unconverged: want true, got false; remove the rule to turn it off`}},
+		{"rule options on flag", "  - choose: {by: aic}\n", "  - reject_unconverged: {strict: true}\n  - choose: {by: aic}\n",
+			[]string{`rules[0].reject_unconverged: want true (this rule has no options), got a mapping`}},
+		{"no final rule", "  - choose: {by: aic}\n", "  - reject_unconverged: true\n",
+			[]string{`bad.yaml:11:3: rules: the last rule must be choose or prefer_simpler, and neither is given`}},
+		{"final rule not last", "  - choose: {by: aic}\n", "  - choose: {by: aic}\n  - reject_unconverged: true\n",
+			[]string{`bad.yaml:11:5: rules[0]: must be the last rule, but 1 rule follows it`}},
+		{"two final rules", "  - choose: {by: aic}\n", "  - choose: {by: aic}\n  - prefer_simpler: true\n",
+			[]string{`bad.yaml:12:5: rules[1]: only one choose or prefer_simpler rule is allowed (the first is at line 11)`}},
+		{"unknown rule test", "  - choose: {by: aic}\n", "  - reject_if_test_rejects: {test: f}\n  - choose: {by: aic}\n",
+			[]string{`bad.yaml:11:36: rules[0].reject_if_test_rejects.test: unknown test "f" (want lr, wald, score or brant)`}},
+		{"unknown rule option", "  - choose: {by: aic}\n", "  - reject_if_test_rejects: {level: 0.1}\n  - choose: {by: aic}\n",
+			[]string{`rules[0].reject_if_test_rejects.level: unknown key "level" (allowed: test, alpha)`}},
+		{"rule alpha range", "  - choose: {by: aic}\n", "  - reject_if_test_rejects: {alpha: -1}\n  - choose: {by: aic}\n",
+			[]string{`rules[0].reject_if_test_rejects.alpha: -1 is out of range`}},
+		{"negative margin", "{by: aic}", "{by: aic, margin: -2}",
+			[]string{`bad.yaml:11:31: rules[0].choose.margin: -2 is out of range (want a number >= 0)`}},
+		{"margin as text", "{by: aic}", "{margin: wide}",
+			[]string{`rules[0].choose.margin: want a number, got string "wide"`}},
+		{"duplicate rule", "  - choose: {by: aic}\n", "  - reject_unconverged: true\n  - reject_unconverged: {}\n  - choose: {by: aic}\n",
+			[]string{`bad.yaml:12:5: rules[1]: repeats the rule at line 11`}},
+		{"negative probabilities without cumulative", tail, "models:\n  approaches: [stage, adjacent]\n  partial:\n    free: [a]\nrules:\n  - reject_negative_probabilities: true\n  - choose: {by: aic}\n",
+			[]string{`bad.yaml:12:36: rules[0].reject_negative_probabilities: applies only to cumulative fits, and models.approaches does not include cumulative`}},
+		{"test rule with one level", tail, "models:\n  levels: [parallel]\nrules:\n  - reject_if_test_rejects: true\n  - choose: {by: aic}\n",
+			[]string{`bad.yaml:10:29: rules[0].reject_if_test_rejects: compares neighbouring levels, but models.levels has only one (parallel)`}},
+		{"focus not a predictor", "", "report: {focus_predictor: zz}\n",
+			[]string{`bad.yaml:12:27: report.focus_predictor: "zz" is not a predictor (predictors: a, b, c)`}},
+		{"confidence range", "", "report: {confidence_level: 95}\n",
+			[]string{`report.confidence_level: 95 is out of range (want a number strictly between 0 and 1)`}},
+		{"timestamp not bool", "", "report: {timestamp: yes}\n",
+			[]string{`report.timestamp: want true or false, got string "yes"`}},
+		{"seed negative", "", "seed: -3\n",
+			[]string{`seed: want a whole number from 0 to 18446744073709551615, got number -3`}},
+		{"report not a mapping", "", "report: [title]\n",
+			[]string{`bad.yaml:12:9: report: want a mapping with keys title, focus_predictor, confidence_level, timestamp; got a list`}},
+		{"control character", "predictors: [a, b, c]", `predictors: [a, "b\u0007", c]`,
+			[]string{`predictors[1]: contains the control or non-printable character U+0007`}},
+		{"not yaml", "predictors: [a, b, c]", "predictors: [a, b",
+			[]string{`bad.yaml:`, `not valid YAML:`}},
+		{"two documents", "", "---\nversion: 1\n",
+			[]string{`bad.yaml:12:1: a plan file holds one YAML document`}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			src := base + c.new
+			if c.old != "" {
+				if !strings.Contains(base, c.old) {
+					t.Fatalf("test setup: %q not in base", c.old)
+				}
+				src = strings.Replace(base, c.old, c.new, 1)
+			}
+			_, err := Parse([]byte(src), "bad.yaml")
+			if err == nil {
+				t.Fatalf("no error for plan:\n%s", src)
+			}
+			var es Errors
+			if !errors.As(err, &es) || len(es) == 0 {
+				t.Fatalf("error is %T, want Errors", err)
+			}
+			for _, w := range c.want {
+				if !strings.Contains(err.Error(), w) {
+					t.Errorf("error does not contain\n  %s\ngot:\n  %s", w, strings.ReplaceAll(err.Error(), "\n", "\n  "))
+				}
+			}
+		})
+	}
+}
+
+func TestAllErrorsInLineOrder(t *testing.T) {
+	src := `version: 1
+title: [x]
+data:
+  file: d.csv
+  colour: red
+outcomes:
+  - column: y
+predictors: [a, b, y]
+models:
+  links: [logit, tobit]
+  partial:
+    free: [a, zz]
+rules:
+  - choose: {by: aicc}
+report:
+  focus_predictor: q
+`
+	_, err := Parse([]byte(src), "m.yaml")
+	var es Errors
+	if !errors.As(err, &es) {
+		t.Fatalf("got %v, want Errors", err)
+	}
+	want := []string{
+		`m.yaml:2:8: title: want text, got a list`,
+		`m.yaml:5:3: data.colour: unknown key "colour"`,
+		`m.yaml:7:13: outcomes[0].column: "y" is both an outcome and a predictor (predictors[2], line 8)`,
+		`m.yaml:10:18: models.links[1]: unknown link "tobit"`,
+		`m.yaml:12:15: models.partial.free[1]: "zz" is not a predictor (predictors: a, b, y)`,
+		`m.yaml:14:18: rules[0].choose.by: unknown criterion "aicc" (want aic or bic)`,
+		`m.yaml:16:20: report.focus_predictor: "q" is not a predictor`,
+	}
+	lines := strings.Split(err.Error(), "\n")
+	if len(lines) != len(want) || len(es) != len(want) {
+		t.Fatalf("got %d errors, want %d:\n%s", len(lines), len(want), err)
+	}
+	for i, w := range want {
+		if !strings.HasPrefix(lines[i], w) {
+			t.Errorf("error %d = %q, want prefix %q", i, lines[i], w)
+		}
+	}
+}
+
+func TestErrorFormat(t *testing.T) {
+	for _, c := range []struct {
+		e    Error
+		want string
+	}{
+		{Error{File: "p.yaml", Line: 14, Col: 5, Key: "rules[2].choose.by", Msg: "bad"}, "p.yaml:14:5: rules[2].choose.by: bad"},
+		{Error{File: "p.yaml", Line: 3, Key: "k", Msg: "bad"}, "p.yaml:3: k: bad"},
+		{Error{File: "p.yaml", Msg: "plan file is empty"}, "p.yaml: plan file is empty"},
+	} {
+		if got := c.e.Error(); got != c.want {
+			t.Errorf("Error() = %q, want %q", got, c.want)
+		}
+	}
+}
+
+func TestEmptyAndMissingFiles(t *testing.T) {
+	for _, src := range []string{"", "# nothing\n", "---\n", "~\n"} {
+		_, err := Parse([]byte(src), "e.yaml")
+		if err == nil || err.Error() != "e.yaml: plan file is empty" {
+			t.Errorf("Parse(%q) error = %v", src, err)
+		}
+	}
+	_, err := Load(filepath.Join(t.TempDir(), "absent.yaml"))
+	if !errors.Is(err, os.ErrNotExist) {
+		t.Errorf("Load of a missing file: %v", err)
+	}
+}
+
+func TestAliases(t *testing.T) {
+	src := strings.Replace(base, "predictors: [a, b, c]", "predictors: &all [a, b, c]", 1) +
+		"report: {focus_predictor: &f b}\n"
+	src = strings.Replace(src, "free: [a]", "free: *all", 1)
+	p, err := Parse([]byte(src), "a.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !reflect.DeepEqual(p.Models.Partial.Free, []string{"a", "b", "c"}) || p.Report.FocusPredictor != "b" {
+		t.Errorf("aliases not followed: %+v %+v", p.Models.Partial, p.Report)
+	}
+}
+
+func TestCanonical(t *testing.T) {
+	p, err := Load(filepath.Join("..", "plans", "example.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := p.Canonical()
+	if !bytes.Equal(c, p.Canonical()) {
+		t.Fatal("Canonical is not deterministic")
+	}
+	for _, w := range []string{`"version": 1`, `"seed": 20261202`, `"direction": "forward"`, `"prefer_simpler": {`, `"margin": 2`} {
+		if !bytes.Contains(c, []byte(w)) {
+			t.Errorf("canonical plan lacks %s:\n%s", w, c)
+		}
+	}
+	for _, w := range []string{p.Hash, `"path"`, `"dir"`, "example.yaml"} {
+		if bytes.Contains(c, []byte(w)) {
+			t.Errorf("canonical plan holds %s", w)
+		}
+	}
+	// The canonical form is itself a plan with the same meaning.
+	q, err := Parse(c, filepath.Join("elsewhere", "plan.json"))
+	if err != nil {
+		t.Fatalf("canonical plan does not parse: %v\n%s", err, c)
+	}
+	if !bytes.Equal(q.Canonical(), c) {
+		t.Errorf("canonical plan changed on reparse:\n%s\nvs\n%s", q.Canonical(), c)
+	}
+	// Comments and key order do not change it.
+	r, err := Parse([]byte("# a comment\n"+strings.Replace(base, "version: 1\n", "", 1)+"version: 1\n"), "b.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	s, err := Parse([]byte(base), "c.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(r.Canonical(), s.Canonical()) || r.Hash == s.Hash {
+		t.Errorf("canonical form depends on layout, or hash does not")
+	}
+}

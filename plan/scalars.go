@@ -1,0 +1,204 @@
+package plan
+
+import (
+	"math"
+
+	"gopkg.in/yaml.v3"
+)
+
+// scalar checks that n is a non-null scalar and gives its text.
+func (d *decoder) scalar(n *yaml.Node, path, want string) (string, bool) {
+	n = deref(n)
+	if n == nil || n.Kind != yaml.ScalarNode || n.ShortTag() == "!!null" {
+		d.errorf(n, path, "want %s, got %s", want, describe(n))
+		return "", false
+	}
+	return n.Value, true
+}
+
+// name reads a column, predictor, category or group name: non-empty text
+// without control characters.
+func (d *decoder) name(n *yaml.Node, path string) (string, bool) {
+	s, ok := d.scalar(n, path, "a name")
+	if !ok {
+		return "", false
+	}
+	if s == "" {
+		d.errorf(deref(n), path, "name is empty")
+		return "", false
+	}
+	return s, d.printable(n, path, s, false)
+}
+
+// token reads one line of text that may be empty, such as a missing-value
+// marker or the name of a lone constraint group.
+func (d *decoder) token(n *yaml.Node, path string) (string, bool) {
+	s, ok := d.scalar(n, path, "a name")
+	if !ok {
+		return "", false
+	}
+	return s, d.printable(n, path, s, false)
+}
+
+// text reads free text such as a title: may be empty, may hold tabs and
+// line breaks but no other control characters.
+func (d *decoder) text(n *yaml.Node, path string) (string, bool) {
+	s, ok := d.scalar(n, path, "text")
+	if !ok {
+		return "", false
+	}
+	return s, d.printable(n, path, s, true)
+}
+
+// printable rejects characters a plan cannot sensibly hold.
+func (d *decoder) printable(n *yaml.Node, path, s string, lines bool) bool {
+	for _, r := range s {
+		ok := (r >= 0x20 && r <= 0x7e) || (r >= 0xa0 && r <= 0xd7ff) ||
+			(r >= 0xe000 && r <= 0xfffd && r != 0xfeff) || (r >= 0x10000 && r <= 0x10ffff) ||
+			(lines && (r == '\t' || r == '\n'))
+		if !ok {
+			d.errorf(deref(n), path, "contains the control or non-printable character U+%04X", r)
+			return false
+		}
+	}
+	return true
+}
+
+// word reads a value that must be one of words.
+func (d *decoder) word(n *yaml.Node, path, what string, words []string) (string, bool) {
+	s, ok := d.scalar(n, path, orList(words))
+	if !ok {
+		return "", false
+	}
+	for _, w := range words {
+		if s == w {
+			return s, true
+		}
+	}
+	d.errorf(deref(n), path, "%s", unknownWord(what, s, words))
+	return "", false
+}
+
+// integer reads a whole number.
+func (d *decoder) integer(n *yaml.Node, path string) (int64, bool) {
+	n = deref(n)
+	var v int64
+	if n == nil || n.Kind != yaml.ScalarNode || n.ShortTag() != "!!int" || n.Decode(&v) != nil {
+		d.errorf(n, path, "want a whole number, got %s", describe(n))
+		return 0, false
+	}
+	return v, true
+}
+
+// unsigned reads a whole number from 0 to 2^64-1.
+func (d *decoder) unsigned(n *yaml.Node, path string) (uint64, bool) {
+	n = deref(n)
+	var v uint64
+	if n == nil || n.Kind != yaml.ScalarNode || n.ShortTag() != "!!int" || n.Decode(&v) != nil {
+		d.errorf(n, path, "want a whole number from 0 to %d, got %s", uint64(math.MaxUint64), describe(n))
+		return 0, false
+	}
+	return v, true
+}
+
+// number reads a finite number.
+func (d *decoder) number(n *yaml.Node, path string) (float64, bool) {
+	n = deref(n)
+	var v float64
+	if n == nil || n.Kind != yaml.ScalarNode || (n.ShortTag() != "!!int" && n.ShortTag() != "!!float") || n.Decode(&v) != nil {
+		d.errorf(n, path, "want a number, got %s", describe(n))
+		return 0, false
+	}
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		d.errorf(n, path, "want a finite number, got %s", n.Value)
+		return 0, false
+	}
+	return v, true
+}
+
+// probability reads a number strictly between 0 and 1.
+func (d *decoder) probability(n *yaml.Node, path string) (float64, bool) {
+	v, ok := d.number(n, path)
+	if !ok {
+		return 0, false
+	}
+	if v <= 0 || v >= 1 {
+		d.errorf(deref(n), path, "%v is out of range (want a number strictly between 0 and 1)", v)
+		return 0, false
+	}
+	return v, true
+}
+
+// boolean reads true or false.
+func (d *decoder) boolean(n *yaml.Node, path string) (bool, bool) {
+	n = deref(n)
+	var v bool
+	if n == nil || n.Kind != yaml.ScalarNode || n.ShortTag() != "!!bool" || n.Decode(&v) != nil {
+		d.errorf(n, path, "want true or false, got %s", describe(n))
+		return false, false
+	}
+	return v, true
+}
+
+// list checks that n is a list, records its items and returns them.
+func (d *decoder) list(n *yaml.Node, path string) ([]*yaml.Node, bool) {
+	n = deref(n)
+	if n == nil || n.Kind != yaml.SequenceNode {
+		hint := ""
+		if n != nil && n.Kind == yaml.ScalarNode {
+			hint = "; write [" + clip(n.Value) + "] for a list of one"
+		}
+		d.errorf(n, path, "want a list, got %s%s", describe(n), hint)
+		return nil, false
+	}
+	items := make([]*yaml.Node, len(n.Content))
+	for i, it := range n.Content {
+		items[i] = d.record(itemPath(path, i), it)
+	}
+	return items, true
+}
+
+// readList reads a list of strings with read, dropping bad items and
+// reporting duplicates. It returns a non-nil slice when n is a list.
+func (d *decoder) readList(n *yaml.Node, path string, read func(*yaml.Node, string) (string, bool)) ([]string, bool) {
+	items, ok := d.list(n, path)
+	if !ok {
+		return nil, false
+	}
+	out := make([]string, 0, len(items))
+	seen := map[string]int{}
+	for i, it := range items {
+		p := itemPath(path, i)
+		s, ok := read(it, p)
+		if !ok {
+			continue
+		}
+		if line, dup := seen[s]; dup {
+			d.errorf(it, p, "%s is listed twice (first at line %d)", quote(s), line)
+			continue
+		}
+		seen[s] = it.Line
+		out = append(out, s)
+	}
+	return out, true
+}
+
+func (d *decoder) names(n *yaml.Node, path string) ([]string, bool) {
+	return d.readList(n, path, d.name)
+}
+
+func (d *decoder) words(n *yaml.Node, path, what string, words []string) ([]string, bool) {
+	return d.readList(n, path, func(n *yaml.Node, p string) (string, bool) {
+		return d.word(n, p, what, words)
+	})
+}
+
+// nonEmpty reports an empty list written in the plan.
+func (d *decoder) nonEmpty(n *yaml.Node, path, what string) bool {
+	n = deref(n)
+	if n != nil && n.Kind == yaml.SequenceNode && len(n.Content) == 0 {
+		d.errorf(n, path, "list is empty; give at least one %s", what)
+		return false
+	}
+	return true
+}
