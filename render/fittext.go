@@ -11,6 +11,7 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
+	"ordplan/numfmt"
 	"ordplan/runner/fit"
 )
 
@@ -21,48 +22,6 @@ type DataSummary struct {
 	RowsRead    int
 	RowsUsed    int
 	DropSummary string
-}
-
-// Num formats a number for tables: six significant digits, fixed where
-// that reads well.
-func Num(x float64) string {
-	switch {
-	case math.IsNaN(x):
-		return "n/a"
-	case math.IsInf(x, 1):
-		return "inf"
-	case math.IsInf(x, -1):
-		return "-inf"
-	case x == 0:
-		return "0"
-	}
-	a := math.Abs(x)
-	if a >= 1e-4 && a < 1e6 {
-		s := fmt.Sprintf("%.6g", x)
-		if !strings.ContainsAny(s, "e") {
-			return s
-		}
-	}
-	return fmt.Sprintf("%.4e", x)
-}
-
-// Fixed formats with d decimals.
-func Fixed(x float64, d int) string {
-	if math.IsNaN(x) || math.IsInf(x, 0) {
-		return Num(x)
-	}
-	return fmt.Sprintf("%.*f", d, x)
-}
-
-// PValue formats a p-value.
-func PValue(p float64) string {
-	switch {
-	case math.IsNaN(p):
-		return "n/a"
-	case p < 0.0001:
-		return "<0.0001"
-	}
-	return fmt.Sprintf("%.4f", p)
 }
 
 // ParamLabel adds the category boundary to cutpoint names: "cut1 (SD|D)".
@@ -85,12 +44,12 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 	if ds.File != "" {
 		fmt.Fprintf(tw, "Data\t%s: %d rows read, %d used; %s\n", ds.File, ds.RowsRead, ds.RowsUsed, ds.DropSummary)
 	}
-	fmt.Fprintf(tw, "Observations\t%s\n", Num(r.NObs))
+	fmt.Fprintf(tw, "Observations\t%s\n", numfmt.Num(r.NObs))
 	fmt.Fprintf(tw, "Status\t%s\n", statusLine(r))
 	if r.OK() {
-		fmt.Fprintf(tw, "Log-likelihood\t%s\n", Fixed(r.LogLik, 6))
+		fmt.Fprintf(tw, "Log-likelihood\t%s\n", numfmt.Fixed(r.LogLik, 6))
 		fmt.Fprintf(tw, "Parameters\t%d\n", r.NParams)
-		fmt.Fprintf(tw, "AIC / BIC\t%s / %s\n", Fixed(r.AIC, 3), Fixed(r.BIC, 3))
+		fmt.Fprintf(tw, "AIC / BIC\t%s / %s\n", numfmt.Fixed(r.AIC, 3), numfmt.Fixed(r.BIC, 3))
 		fmt.Fprintf(tw, "Standard errors\t%s\n", covName(r.CovType))
 	}
 	if err := tw.Flush(); err != nil {
@@ -108,7 +67,7 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 		est, se := r.Estimates[i], r.StdErrors[i]
 		zz := est / se
 		p := 2 * distuv.UnitNormal.Survival(math.Abs(zz))
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t[%s, %s]\t\n", ParamLabel(r, n), Num(est), Num(se), Fixed(zz, 2), PValue(p), Num(est-z*se), Num(est+z*se))
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t[%s, %s]\t\n", ParamLabel(r, n), numfmt.Num(est), numfmt.Num(se), numfmt.Fixed(zz, 2), numfmt.PValue(p), numfmt.Num(est-z*se), numfmt.Num(est+z*se))
 	}
 	if err := tw.Flush(); err != nil {
 		return err
@@ -146,7 +105,7 @@ func BaselineTable(w io.Writer, r *fit.Result, b *fit.Baseline) {
 	fmt.Fprintf(tw, "parameter\tcategory\testimate\tstd. error\t\n")
 	nc := len(b.Categories)
 	for i, n := range b.Names {
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", n, r.Levels[b.Categories[i%nc]], Num(b.Estimates[i]), Num(b.StdErrors[i]))
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", n, r.Levels[b.Categories[i%nc]], numfmt.Num(b.Estimates[i]), numfmt.Num(b.StdErrors[i]))
 	}
 	tw.Flush()
 }

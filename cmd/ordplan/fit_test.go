@@ -27,9 +27,9 @@ func TestFitJSONMatchesReference(t *testing.T) {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
 	var got struct {
-		LogLik    float64              `json:"loglik"`
-		NParams   int                  `json:"n_params"`
-		NObs      float64              `json:"nobs"`
+		LogLik    float64 `json:"loglik"`
+		NParams   int     `json:"n_params"`
+		NObs      float64 `json:"nobs"`
 		AIC, BIC  float64
 		Converged bool                 `json:"converged"`
 		Cutpoints []float64            `json:"cutpoints"`

@@ -1,0 +1,217 @@
+package runner
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"fmt"
+	"os"
+	"path/filepath"
+	"sort"
+	"time"
+
+	"ordplan/data"
+	"ordplan/runner/fit"
+)
+
+// Decisions is the content of decisions.json.
+type Decisions struct {
+	Program  string             `json:"program"`
+	Version  string             `json:"version"`
+	Plan     PlanRef            `json:"plan"`
+	Data     DataRef            `json:"data"`
+	Notes    []string           `json:"notes"`
+	Outcomes []OutcomeDecisions `json:"outcomes"`
+}
+
+// PlanRef names the plan of a run.
+type PlanRef struct {
+	File   string `json:"file"`
+	Title  string `json:"title"`
+	SHA256 string `json:"sha256"`
+}
+
+// DataRef names the data of a run.
+type DataRef struct {
+	File   string `json:"file"`
+	SHA256 string `json:"sha256"`
+}
+
+// OutcomeDecisions is one outcome's part of decisions.json.
+type OutcomeDecisions struct {
+	Outcome    string             `json:"outcome"`
+	Categories []string           `json:"categories"`
+	Counts     []float64          `json:"counts"`
+	RowsRead   int                `json:"rows_read"`
+	RowsUsed   int                `json:"rows_used"`
+	Dropped    []data.DropCount   `json:"rows_dropped"`
+	NObs       float64            `json:"nobs"`
+	PartialSet []FreeSetRecord    `json:"partial_sets"`
+	Stepwise   []StepwiseJSON     `json:"stepwise,omitempty"`
+	Fits       []FitDecision      `json:"fits"`
+	Tests      []TestBlockJSON    `json:"tests"`
+	Rules      []RuleJSON         `json:"rules"`
+	Chosen     *string            `json:"chosen"`
+	Choice     string             `json:"choice"`
+	Notes      []string           `json:"notes"`
+	Final      map[string]Verdict `json:"final_verdicts"`
+}
+
+// FreeSetRecord is a partial set in JSON.
+type FreeSetRecord struct {
+	Approach   string   `json:"approach"`
+	Predictors []string `json:"predictors"`
+	Source     string   `json:"source"`
+}
+
+// StepwiseJSON is one stepwise selection in JSON.
+type StepwiseJSON struct {
+	Approach string              `json:"approach"`
+	Link     string              `json:"link"`
+	Result   *fit.StepwiseResult `json:"result"`
+}
+
+// FitDecision is one fit and what the rules made of it.
+type FitDecision struct {
+	ID        string `json:"id"`
+	Auxiliary bool   `json:"auxiliary"`
+	Error     string `json:"error,omitempty"`
+	Verdict   string `json:"verdict,omitempty"`
+	Rejected  string `json:"reason,omitempty"`
+	FitRecord
+}
+
+// TestBlockJSON is a test block in JSON.
+type TestBlockJSON struct {
+	Approach    string       `json:"approach"`
+	Link        string       `json:"link"`
+	Global      []fit.Test   `json:"parallel_lines"`
+	PerVariable []VarTests   `json:"per_variable"`
+	Nested      []NestedTest `json:"nested_lr"`
+}
+
+// RuleJSON is one rule's outcome in JSON.
+type RuleJSON struct {
+	Kind        string    `json:"rule"`
+	Line        int       `json:"line"`
+	Description string    `json:"description"`
+	Verdicts    []Verdict `json:"verdicts"`
+}
+
+// BuildDecisions assembles the decisions record of a run.
+func BuildDecisions(r *Result) *Decisions {
+	p := r.Plan
+	d := &Decisions{Program: "ordplan", Version: r.Version,
+		Plan:  PlanRef{File: filepath.Base(p.Path), Title: p.Title, SHA256: p.Hash},
+		Data:  DataRef{File: p.Data.File, SHA256: r.DataHash},
+		Notes: nonNil(r.Notes)}
+	for _, or := range r.Outcomes {
+		od := OutcomeDecisions{Outcome: or.Outcome.Column, Categories: or.Data.Levels, Counts: or.Data.Counts,
+			RowsRead: or.Data.RowsRead, RowsUsed: or.Data.N, Dropped: nonNilDrops(or.Data.Dropped), NObs: or.Data.NObs(),
+			Choice: or.Choice, Notes: nonNil(or.Notes), Final: map[string]Verdict{}}
+		for _, fs := range or.FreeSets {
+			od.PartialSet = append(od.PartialSet, FreeSetRecord{fs.Approach, nonNil(fs.Predictors), fs.Source})
+		}
+		for _, s := range or.Stepwise {
+			od.Stepwise = append(od.Stepwise, StepwiseJSON{s.Approach, s.Link, s.Result})
+		}
+		for _, f := range or.Fits {
+			fd := FitDecision{ID: f.ID, Auxiliary: f.Auxiliary, Error: f.Err, Verdict: f.Verdict, Rejected: f.Rejected}
+			if f.Result != nil {
+				fd.FitRecord = Record(f.Result)
+			}
+			od.Fits = append(od.Fits, fd)
+			if !f.Auxiliary {
+				od.Final[f.ID] = Verdict{Model: f.ID, Kept: f.Verdict == "chosen" || f.Verdict == "kept", Reason: verdictText(f)}
+			}
+		}
+		for _, tb := range or.Tests {
+			od.Tests = append(od.Tests, TestBlockJSON{tb.Approach, tb.Link, tb.Global, tb.PerVariable, tb.Nested})
+		}
+		for _, ro := range or.Rules {
+			od.Rules = append(od.Rules, RuleJSON{ro.Rule.Kind, ro.Rule.Line, ro.Description, ro.Verdicts})
+		}
+		if or.Chosen != nil {
+			id := or.Chosen.ID
+			od.Chosen = &id
+		}
+		d.Outcomes = append(d.Outcomes, od)
+	}
+	return d
+}
+
+func verdictText(f *FitEntry) string {
+	if f.Rejected != "" {
+		return f.Verdict + ": " + f.Rejected
+	}
+	return f.Verdict
+}
+
+func nonNil(xs []string) []string {
+	if xs == nil {
+		return []string{}
+	}
+	return xs
+}
+
+func nonNilDrops(xs []data.DropCount) []data.DropCount {
+	if xs == nil {
+		return []data.DropCount{}
+	}
+	return xs
+}
+
+// MarshalStable encodes v as indented JSON with a final newline.
+func MarshalStable(v any) ([]byte, error) {
+	var buf bytes.Buffer
+	enc := json.NewEncoder(&buf)
+	enc.SetIndent("", "  ")
+	enc.SetEscapeHTML(false)
+	if err := enc.Encode(v); err != nil {
+		return nil, err
+	}
+	return buf.Bytes(), nil
+}
+
+// RunRecord is the content of run.json: what produced the outputs.
+type RunRecord struct {
+	Program   string            `json:"program"`
+	Version   string            `json:"version"`
+	Plan      PlanRef           `json:"plan"`
+	Data      DataRef           `json:"data"`
+	Seed      uint64            `json:"seed"`
+	Outputs   map[string]string `json:"outputs_sha256"`
+	Timestamp string            `json:"timestamp,omitempty"`
+}
+
+// WriteFiles writes the named files into dir, then run.json with their
+// hashes. It returns the decisions bytes.
+func WriteFiles(r *Result, dir string, files map[string][]byte) error {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return fmt.Errorf("output directory: %w", err)
+	}
+	rec := RunRecord{Program: "ordplan", Version: r.Version,
+		Plan: PlanRef{File: filepath.Base(r.Plan.Path), Title: r.Plan.Title, SHA256: r.Plan.Hash},
+		Data: DataRef{File: r.Plan.Data.File, SHA256: r.DataHash}, Seed: r.Plan.Seed, Outputs: map[string]string{}}
+	if r.Plan.Report.Timestamp {
+		rec.Timestamp = time.Now().UTC().Format(time.RFC3339)
+	}
+	names := make([]string, 0, len(files))
+	for n := range files {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	for _, n := range names {
+		if err := os.WriteFile(filepath.Join(dir, n), files[n], 0o644); err != nil {
+			return err
+		}
+		s := sha256.Sum256(files[n])
+		rec.Outputs[n] = hex.EncodeToString(s[:])
+	}
+	b, err := MarshalStable(rec)
+	if err != nil {
+		return err
+	}
+	return os.WriteFile(filepath.Join(dir, "run.json"), b, 0o644)
+}

@@ -1,0 +1,286 @@
+package runner
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"fmt"
+	"io"
+	"os"
+	"runtime"
+	"slices"
+	"sync"
+
+	"ordplan/data"
+	"ordplan/plan"
+	"ordplan/runner/fit"
+)
+
+// Options control a run; none of them changes the results.
+type Options struct {
+	Workers  int       // fits run at once (default: all cores)
+	Progress io.Writer // progress lines (nil: none)
+}
+
+// Run executes a validated plan: data, fits, tests, rules.
+func Run(p *plan.Plan, opt Options) (*Result, error) {
+	if opt.Workers <= 0 {
+		opt.Workers = runtime.GOMAXPROCS(0)
+	}
+	if err := supported(p); err != nil {
+		return nil, err
+	}
+	raw, err := os.ReadFile(p.Data.Path)
+	if err != nil {
+		return nil, fmt.Errorf("%s: data.file: %v", p.Path, err)
+	}
+	sum := sha256.Sum256(raw)
+	res := &Result{Plan: p, DataHash: hex.EncodeToString(sum[:]), Version: Version}
+	res.Notes = append(res.Notes, fmt.Sprintf("Standard errors from the %s.", covarianceName(p.Covariance)))
+	for _, oc := range p.Outcomes {
+		or, err := runOutcome(p, oc, opt)
+		if err != nil {
+			return nil, err
+		}
+		res.Outcomes = append(res.Outcomes, or)
+	}
+	return res, nil
+}
+
+// supported refuses plan settings this version cannot honour, instead of
+// silently ignoring them.
+func supported(p *plan.Plan) error {
+	switch p.Covariance {
+	case "", "oim", "eim":
+	default:
+		return fmt.Errorf("%s: covariance: %q standard errors are not available in ordplan %s (use oim or eim)", p.Path, p.Covariance, Version)
+	}
+	if p.Data.Weights != "" && p.Data.WeightKind == "probability" {
+		return fmt.Errorf("%s: data.weight_kind: probability weights need sandwich standard errors, not available in ordplan %s; use frequency weights or none", p.Path, Version)
+	}
+	return nil
+}
+
+func covarianceName(c string) string {
+	if c == "eim" {
+		return "expected information (Fisher scoring form)"
+	}
+	return "observed information (inverse of minus the Hessian at the maximum)"
+}
+
+func runOutcome(p *plan.Plan, oc plan.Outcome, opt Options) (*OutcomeResult, error) {
+	ds, err := data.Load(p.Data.Path, data.Options{
+		Outcome: oc.Column, Levels: oc.Categories, Predictors: p.Predictors,
+		Weights: p.Data.Weights, Offset: p.Data.Offset, Cluster: p.Data.Cluster,
+		Refuse: p.Data.Missing == "refuse", MissingTokens: p.Data.MissingValues,
+	})
+	if err != nil {
+		return nil, fmt.Errorf("%s (plan %s, outcome %q)", err, p.Path, oc.Column)
+	}
+	if len(ds.Unobserved) > 0 {
+		return nil, fmt.Errorf("%s: outcomes: %s: category %q is declared but never observed in the %d rows used; remove it from categories or merge it with a neighbour", p.Path, oc.Column, ds.Unobserved[0], ds.N)
+	}
+	or := &OutcomeResult{Outcome: oc, Data: ds, FitData: FitData(ds)}
+	fopt := fit.Options{Covariance: p.Covariance, Workers: 1}
+	links := p.Models.Links
+	backward := p.Models.Direction == "backward"
+
+	// 1. The partial set of each approach: listed, or selected stepwise.
+	or.FreeSets, or.Stepwise = freeSets(p, or.FitData, backward, fopt, opt.Workers)
+
+	// 2. The grid of candidate fits and the auxiliary fits the tests need.
+	jobs, notes := gridJobs(p, or.FreeSets, backward)
+	or.Notes = append(or.Notes, notes...)
+	runJobs(jobs, or.FitData, fopt, opt, oc.Column)
+	or.Fits = jobs
+
+	// 3. Tests of the parallel-lines assumption and nested LR tests.
+	for _, a := range p.Models.Approaches {
+		for _, l := range links {
+			or.Tests = append(or.Tests, testBlock(p, or, a, l, fopt))
+		}
+	}
+
+	// 4. The decision rules, in order.
+	applyRules(p, or)
+	return or, nil
+}
+
+// freeSets returns the partial set of each approach.
+func freeSets(p *plan.Plan, d *fit.Data, backward bool, fopt fit.Options, workers int) ([]FreeSet, []StepwiseRecord) {
+	var out []FreeSet
+	var sw []StepwiseRecord
+	sel := p.Models.Partial.Select
+	if sel == nil {
+		for _, a := range p.Models.Approaches {
+			out = append(out, FreeSet{Approach: a, Predictors: p.Models.Partial.Free, Source: "plan"})
+		}
+		return out, nil
+	}
+	link := p.Models.Links[0]
+	sw = make([]StepwiseRecord, len(p.Models.Approaches))
+	var wg sync.WaitGroup
+	sem := make(chan struct{}, workers)
+	for i, a := range p.Models.Approaches {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			sem <- struct{}{}
+			defer func() { <-sem }()
+			c, _ := fit.ParseComparison(a)
+			l, _ := fit.ParseLink(link)
+			r := fit.Stepwise(d, fit.Model{Comparison: c, Backward: backward && c == fit.Stage, Link: l}, p.Predictors, sel.Alpha, sel.Test, fopt)
+			sw[i] = StepwiseRecord{Approach: a, Link: link, Result: r}
+		}()
+	}
+	wg.Wait()
+	for _, s := range sw {
+		fs := FreeSet{Approach: s.Approach, Source: "stepwise"}
+		if s.Result.OK {
+			fs.Predictors = s.Result.FinalNonparallel
+		}
+		out = append(out, fs)
+	}
+	return out, sw
+}
+
+func freeFor(sets []FreeSet, approach string) []string {
+	for _, s := range sets {
+		if s.Approach == approach {
+			return s.Predictors
+		}
+	}
+	return nil
+}
+
+// gridJobs lists the candidate fits in plan order, then the auxiliary fits.
+func gridJobs(p *plan.Plan, sets []FreeSet, backward bool) ([]*FitEntry, []string) {
+	var jobs []*FitEntry
+	var notes []string
+	have := map[string]bool{}
+	add := func(e *FitEntry) {
+		if !have[e.ID] {
+			have[e.ID] = true
+			jobs = append(jobs, e)
+		}
+	}
+	var groups []Group
+	for _, g := range p.Models.Partial.Groups {
+		groups = append(groups, Group{Name: g.Name, Predictors: g.Predictors})
+	}
+	for _, a := range p.Models.Approaches {
+		free := freeFor(sets, a)
+		for _, l := range p.Models.Links {
+			for _, lv := range p.Models.Levels {
+				id := a + "/" + lv + "/" + l
+				if lv == LevelStereotype && a != "adjacent" {
+					continue
+				}
+				if (lv == LevelPartial || lv == LevelConstrained) && len(free) == 0 {
+					notes = append(notes, fmt.Sprintf("%s not fitted: the partial set of the %s approach is empty, so the model equals %s/parallel/%s", id, a, a, l))
+					continue
+				}
+				if lv == LevelPartial && len(free) == len(p.Predictors) {
+					notes = append(notes, fmt.Sprintf("%s not fitted: every predictor is in the partial set, so the model equals %s/nonparallel/%s", id, a, l))
+					continue
+				}
+				g := groups
+				if lv == LevelConstrained && (len(g) == 0 || p.Models.Partial.Select != nil) {
+					g = []Group{{Predictors: free}}
+				}
+				spec, err := LevelSpec(a, backward && a == "stage", l, lv, p.Predictors, free, g)
+				e := &FitEntry{ID: id, Approach: a, Level: lv, Link: l, Spec: spec}
+				if err != nil {
+					e.Err = err.Error()
+				}
+				add(e)
+			}
+		}
+	}
+	// Auxiliary fits for the parallel-lines tests.
+	needPer := slices.Contains(p.Tests.ParallelLines, "lr")
+	needGlobal := needPer || slices.Contains(p.Tests.ParallelLines, "wald") || slices.Contains(p.Tests.ParallelLines, "score")
+	for _, a := range p.Models.Approaches {
+		for _, l := range p.Models.Links {
+			if !needGlobal {
+				continue
+			}
+			for _, lv := range []string{LevelParallel, LevelNonparallel} {
+				id := a + "/" + lv + "/" + l
+				if have[id] {
+					continue
+				}
+				spec, _ := LevelSpec(a, backward && a == "stage", l, lv, p.Predictors, nil, nil)
+				add(&FitEntry{ID: id, Approach: a, Level: lv, Link: l, Spec: spec, Auxiliary: true})
+			}
+			if !needPer || len(p.Predictors) < 2 {
+				continue
+			}
+			for _, pred := range p.Predictors {
+				var np []string
+				for _, q := range p.Predictors {
+					if q != pred {
+						np = append(np, q)
+					}
+				}
+				spec := Spec{Approach: a, Backward: backward && a == "stage", Link: l, Predictors: p.Predictors, Nonparallel: np}
+				add(&FitEntry{ID: auxID(a, pred, l), Approach: a, Level: "only-" + pred + "-parallel", Link: l, Spec: spec, Auxiliary: true})
+			}
+		}
+	}
+	return jobs, notes
+}
+
+func auxID(approach, pred, link string) string {
+	return approach + "/only-" + pred + "-parallel/" + link
+}
+
+// runJobs fits every entry, several at once; results land in their entry,
+// so the order of completion does not matter.
+func runJobs(jobs []*FitEntry, d *fit.Data, fopt fit.Options, opt Options, outcome string) {
+	var wg sync.WaitGroup
+	sem := make(chan struct{}, opt.Workers)
+	var mu sync.Mutex
+	done := 0
+	for _, e := range jobs {
+		if e.Err != "" {
+			continue
+		}
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			sem <- struct{}{}
+			defer func() { <-sem }()
+			m, err := e.Spec.Model()
+			if err == nil {
+				e.Result, err = fit.Fit(d, m, fopt)
+			}
+			if err != nil {
+				e.Err = err.Error()
+			}
+			if opt.Progress != nil {
+				mu.Lock()
+				done++
+				status := "error"
+				if e.Result != nil {
+					status = string(e.Result.Status)
+				}
+				fmt.Fprintf(opt.Progress, "\r[%d/%d] %s: %s %-40s", done, len(jobs), outcome, e.ID, status)
+				if done == len(jobs) {
+					fmt.Fprintln(opt.Progress)
+				}
+				mu.Unlock()
+			}
+		}()
+	}
+	wg.Wait()
+}
+
+// Find returns the fit with the given id.
+func (or *OutcomeResult) Find(id string) *FitEntry {
+	for _, f := range or.Fits {
+		if f.ID == id {
+			return f
+		}
+	}
+	return nil
+}

@@ -1,0 +1,100 @@
+package runner
+
+import (
+	"ordplan/data"
+	"ordplan/plan"
+	"ordplan/runner/fit"
+)
+
+// Result is everything a plan run produced, in plan order.
+type Result struct {
+	Plan     *plan.Plan
+	DataHash string // hex SHA-256 of the data file
+	Version  string
+	Outcomes []*OutcomeResult
+	Notes    []string // run-level remarks (covariance, weights)
+}
+
+// OutcomeResult holds the fits, tests and decisions of one outcome.
+type OutcomeResult struct {
+	Outcome  plan.Outcome
+	Data     *data.Dataset
+	FitData  *fit.Data
+	FreeSets []FreeSet        // the partial set of each approach
+	Stepwise []StepwiseRecord // when the partial set is selected
+	Fits     []*FitEntry      // candidates first (grid order), then auxiliary fits
+	Tests    []*TestBlock     // per approach and link
+	Rules    []*RuleOutcome
+	Chosen   *FitEntry
+	Choice   string   // why the chosen model was chosen, or why none was
+	Notes    []string // models not fitted and why
+}
+
+// FreeSet is the set of predictors allowed to vary in partial and
+// constrained models of one approach, and where it came from.
+type FreeSet struct {
+	Approach   string
+	Predictors []string
+	Source     string // "plan" or "stepwise"
+}
+
+// StepwiseRecord is the stepwise selection of one approach.
+type StepwiseRecord struct {
+	Approach string
+	Link     string
+	Result   *fit.StepwiseResult
+}
+
+// FitEntry is one fitted model.
+type FitEntry struct {
+	ID        string // approach/level/link, or approach/aux-name/link for auxiliary fits
+	Approach  string
+	Level     string
+	Link      string
+	Auxiliary bool // fitted for tests only, never a candidate
+	Spec      Spec
+	Result    *fit.Result
+	Err       string // the fit could not be attempted (bad input for this model)
+	Verdict   string // kept, rejected or chosen (candidates only)
+	Rejected  string // the rule that rejected it, with its numbers
+}
+
+// OK reports whether the fit has usable estimates.
+func (f *FitEntry) OK() bool { return f != nil && f.Result != nil && f.Result.OK() }
+
+// TestBlock holds the parallel-lines tests and nested likelihood-ratio
+// tests of one approach and link.
+type TestBlock struct {
+	Approach    string
+	Link        string
+	Global      []fit.Test // lr, score, wald, brant, wolfe_gould (those asked for)
+	PerVariable []VarTests
+	Nested      []NestedTest
+}
+
+// VarTests are the per-variable parallel-lines tests of one predictor.
+type VarTests struct {
+	Predictor string
+	Tests     []fit.Test
+}
+
+// NestedTest is a likelihood-ratio test between two fitted levels.
+type NestedTest struct {
+	Restricted string
+	Full       string
+	Test       fit.Test
+}
+
+// RuleOutcome is what one decision rule did to every candidate.
+type RuleOutcome struct {
+	Rule        plan.Rule
+	Description string
+	Verdicts    []Verdict
+}
+
+// Verdict is one rule's decision on one model.
+type Verdict struct {
+	Model  string `json:"model"`
+	Kept   bool   `json:"kept"`
+	Reason string `json:"reason"`
+}
