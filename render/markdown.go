@@ -17,7 +17,9 @@ import (
 type md struct{ b bytes.Buffer }
 
 func (m *md) p(format string, a ...any) { fmt.Fprintf(&m.b, format+"\n\n", a...) }
-func (m *md) h(level int, title string) { fmt.Fprintf(&m.b, "%s %s\n\n", strings.Repeat("#", level), title) }
+func (m *md) h(level int, title string) {
+	fmt.Fprintf(&m.b, "%s %s\n\n", strings.Repeat("#", level), title)
+}
 
 // table writes a Markdown table; cells are escaped for pipes.
 func (m *md) table(head []string, rows [][]string) {
