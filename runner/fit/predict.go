@@ -1,0 +1,335 @@
+package fit
+
+import (
+	"fmt"
+	"math"
+
+	"gonum.org/v1/gonum/stat/distuv"
+)
+
+// Prediction holds category probabilities for new rows with delta-method
+// standard errors.
+type Prediction struct {
+	N, J     int
+	Prob     []float64 // N x J
+	SE       []float64 // N x J
+	Negative []bool    // a category probability is negative (cumulative partial/nonparallel)
+}
+
+// probsAt fills p (length J) with the category probabilities of one row x
+// (length K) with offset off, at parameters theta.
+func (pr *problem) probsAt(theta []float64, x []float64, off float64, p []float64) {
+	c := pr.coefs(theta)
+	d := &design{n: 1, K: len(x), x: x, y: []int{0}}
+	if off != 0 {
+		d.off = []float64{off}
+	}
+	save := pr.d
+	pr.d = d
+	L := make([]float64, pr.q)
+	pr.linear(c, 0, L)
+	pr.d = save
+	pr.ker.probs(L, p)
+}
+
+// dprobsDL fills D (J x (J-1)) with dP_j/dL_m at L.
+func (k *kernel) dprobsDL(L []float64, D []float64) {
+	q := k.nEq
+	J := q + 1
+	for i := range D[:J*q] {
+		D[i] = 0
+	}
+	if k.cmp == Cumulative {
+		for m := 0; m < q; m++ {
+			lf, _ := k.link.logDensity(L[m])
+			f := math.Exp(lf)
+			D[m*q+m] += f
+			D[(m+1)*q+m] -= f
+		}
+		return
+	}
+	g := make([]float64, q)
+	for j := 0; j < J; j++ {
+		lp, ok := k.eval(L, j, g, nil)
+		if !ok {
+			continue
+		}
+		P := math.Exp(lp)
+		for m := 0; m < q; m++ {
+			D[j*q+m] = P * g[m]
+		}
+	}
+}
+
+// rowLinear returns the J-1 linear predictors of one row.
+func (pr *problem) rowLinear(theta []float64, x []float64, off float64) []float64 {
+	c := pr.coefs(theta)
+	d := &design{n: 1, K: len(x), x: x, y: []int{0}}
+	if off != 0 {
+		d.off = []float64{off}
+	}
+	save := pr.d
+	pr.d = d
+	L := make([]float64, pr.q)
+	pr.linear(c, 0, L)
+	pr.d = save
+	return L
+}
+
+// rowJacobian returns dP_j/dtheta (J x P) for one row, analytically:
+// dP/dL times dL/dtheta.
+func (pr *problem) rowJacobian(theta []float64, x []float64, off float64) []float64 {
+	q, P := pr.q, len(theta)
+	J := q + 1
+	L := pr.rowLinear(theta, x, off)
+	D := make([]float64, J*q)
+	pr.ker.dprobsDL(L, D)
+	// dL_m/dtheta
+	dL := make([]float64, q*P)
+	dv := pr.derivs(theta)
+	u := pr.rowColumns(theta, x)
+	for i, dd := range dv {
+		if dd.parallel {
+			xv := x[pr.parCols[dd.col]]
+			for m := 0; m < q; m++ {
+				dL[m*P+i] = -xv
+			}
+			continue
+		}
+		for _, e := range dd.c {
+			dL[e.m*P+i] += e.v * u[dd.col]
+		}
+	}
+	out := make([]float64, J*P)
+	for j := 0; j < J; j++ {
+		for m := 0; m < q; m++ {
+			if D[j*q+m] == 0 {
+				continue
+			}
+			for i := 0; i < P; i++ {
+				out[j*P+i] += D[j*q+m] * dL[m*P+i]
+			}
+		}
+	}
+	return out
+}
+
+// rowColumns returns the per-equation columns of one row.
+func (pr *problem) rowColumns(theta []float64, x []float64) []float64 {
+	c := pr.coefs(theta)
+	u := make([]float64, len(pr.freeCols))
+	for j, col := range pr.freeCols {
+		switch {
+		case col == -1:
+			u[j] = 1
+		case col >= 0:
+			u[j] = x[col]
+		default:
+			g := -(col + 2)
+			for t, k := range pr.ly.groups[g] {
+				u[j] += x[k] * c.gam[g][t]
+			}
+		}
+	}
+	return u
+}
+
+func (r *Result) problem() (*problem, error) {
+	if !r.OK() || r.Cov == nil {
+		return nil, fmt.Errorf("%s has no usable estimates (%s)", r.Name, r.Status)
+	}
+	ly, err := newLayout(r.Model, r.J, r.Predictors)
+	if err != nil {
+		return nil, err
+	}
+	return newProblem(&design{K: len(r.Predictors)}, r.Model, ly, 1), nil
+}
+
+// Predict returns the category probabilities of rows X (N x K, in the
+// fit's predictor order) with offsets (nil: none), with delta-method
+// standard errors from the fit's covariance, and flags rows with a
+// negative probability.
+func (r *Result) Predict(X []float64, offset []float64) (*Prediction, error) {
+	pr, err := r.problem()
+	if err != nil {
+		return nil, err
+	}
+	K := len(r.Predictors)
+	if K == 0 && len(X) != 0 || K > 0 && len(X)%K != 0 {
+		return nil, fmt.Errorf("X has %d values, not a multiple of %d predictors", len(X), K)
+	}
+	n := 1
+	if K > 0 {
+		n = len(X) / K
+	}
+	J, P := r.J, len(r.Estimates)
+	out := &Prediction{N: n, J: J, Prob: make([]float64, n*J), SE: make([]float64, n*J), Negative: make([]bool, n)}
+	for i := 0; i < n; i++ {
+		x := X[i*K : (i+1)*K]
+		off := 0.0
+		if offset != nil {
+			off = offset[i]
+		}
+		p := out.Prob[i*J : (i+1)*J]
+		pr.probsAt(r.Estimates, x, off, p)
+		for _, v := range p {
+			if v < 0 {
+				out.Negative[i] = true
+			}
+		}
+		G := pr.rowJacobian(r.Estimates, x, off)
+		for j := 0; j < J; j++ {
+			out.SE[i*J+j] = math.Sqrt(quadForm(G[j*P:(j+1)*P], r.Cov))
+		}
+	}
+	return out, nil
+}
+
+func quadForm(g, V []float64) float64 {
+	P := len(g)
+	s := 0.0
+	for a := 0; a < P; a++ {
+		if g[a] == 0 {
+			continue
+		}
+		for b := 0; b < P; b++ {
+			s += g[a] * V[a*P+b] * g[b]
+		}
+	}
+	return math.Max(s, 0)
+}
+
+// MarginalEffect is the average effect of one predictor on the probability
+// of one category.
+type MarginalEffect struct {
+	Predictor string  `json:"predictor"`
+	Category  string  `json:"category"`
+	Discrete  bool    `json:"discrete"` // change from 0 to 1 (0/1 predictor) instead of a derivative
+	Effect    float64 `json:"effect"`
+	SE        float64 `json:"se"`
+	Z         float64 `json:"z"`
+	P         float64 `json:"p"`
+	Low       float64 `json:"low"`
+	High      float64 `json:"high"`
+}
+
+// AverageMarginalEffects returns, for every predictor and category, the
+// weighted average over the rows of d of dP(y=j)/dx_k (or, for a 0/1
+// predictor, of P(y=j | x_k=1) - P(y=j | x_k=0)), with delta-method
+// standard errors (the Jacobian in the parameters is analytic for the
+// probabilities; for derivative effects it is differentiated numerically)
+// and intervals at the given level.
+func (r *Result) AverageMarginalEffects(d *Data, level float64) ([]MarginalEffect, error) {
+	pr, err := r.problem()
+	if err != nil {
+		return nil, err
+	}
+	if level <= 0 || level >= 1 {
+		level = 0.95
+	}
+	K, J, P := len(r.Predictors), r.J, len(r.Estimates)
+	if len(d.Predictors) != K {
+		return nil, fmt.Errorf("data have %d predictors, the fit %d", len(d.Predictors), K)
+	}
+	n := d.N()
+	z := distuv.UnitNormal.Quantile(0.5 + level/2)
+	var out []MarginalEffect
+	for k := 0; k < K; k++ {
+		binary := isBinary(d, k)
+		eff := func(theta []float64) ([]float64, []float64) {
+			ame := make([]float64, J)
+			jac := make([]float64, J*P)
+			tot := 0.0
+			x := make([]float64, K)
+			p0, p1 := make([]float64, J), make([]float64, J)
+			for i := 0; i < n; i++ {
+				w := 1.0
+				if d.Weights != nil {
+					w = d.Weights[i]
+				}
+				if w == 0 {
+					continue
+				}
+				tot += w
+				copy(x, d.X[i*K:(i+1)*K])
+				off := 0.0
+				if d.Offset != nil {
+					off = d.Offset[i]
+				}
+				if binary {
+					x[k] = 1
+					pr.probsAt(theta, x, off, p1)
+					g1 := pr.rowJacobian(theta, x, off)
+					x[k] = 0
+					pr.probsAt(theta, x, off, p0)
+					g0 := pr.rowJacobian(theta, x, off)
+					for j := 0; j < J; j++ {
+						ame[j] += w * (p1[j] - p0[j])
+						for a := 0; a < P; a++ {
+							jac[j*P+a] += w * (g1[j*P+a] - g0[j*P+a])
+						}
+					}
+					continue
+				}
+				// dP_j/dx_k = sum_m dP_j/dL_m * dL_m/dx_k, dL_m/dx_k = -b_mk.
+				L := pr.rowLinear(theta, x, off)
+				D := make([]float64, J*(J-1))
+				pr.ker.dprobsDL(L, D)
+				B := pr.ly.effects(theta, r.Model.Effects)
+				for j := 0; j < J; j++ {
+					for m := 0; m < J-1; m++ {
+						ame[j] -= w * D[j*(J-1)+m] * B[m*K+k]
+					}
+				}
+			}
+			for j := range ame {
+				ame[j] /= tot
+			}
+			for a := range jac {
+				jac[a] /= tot
+			}
+			return ame, jac
+		}
+		ame, jac := eff(r.Estimates)
+		if !binary {
+			// Jacobian of the derivative effect by central differences.
+			for a := 0; a < P; a++ {
+				h := 1e-6 * math.Max(1, math.Abs(r.Estimates[a]))
+				tp := append([]float64(nil), r.Estimates...)
+				tm := append([]float64(nil), r.Estimates...)
+				tp[a] += h
+				tm[a] -= h
+				ep, _ := eff(tp)
+				em, _ := eff(tm)
+				for j := 0; j < J; j++ {
+					jac[j*P+a] = (ep[j] - em[j]) / (2 * h)
+				}
+			}
+		}
+		for j := 0; j < J; j++ {
+			se := math.Sqrt(quadForm(jac[j*P:(j+1)*P], r.Cov))
+			me := MarginalEffect{Predictor: r.Predictors[k], Category: r.Levels[j], Discrete: binary, Effect: ame[j], SE: se}
+			if se > 0 {
+				me.Z = ame[j] / se
+				me.P = 2 * distuv.UnitNormal.Survival(math.Abs(me.Z))
+			} else {
+				me.P = math.NaN()
+			}
+			me.Low, me.High = ame[j]-z*se, ame[j]+z*se
+			out = append(out, me)
+		}
+	}
+	return out, nil
+}
+
+// isBinary reports whether predictor k takes only the values 0 and 1.
+func isBinary(d *Data, k int) bool {
+	K := len(d.Predictors)
+	for i := 0; i < d.N(); i++ {
+		v := d.X[i*K+k]
+		if v != 0 && v != 1 {
+			return false
+		}
+	}
+	return true
+}

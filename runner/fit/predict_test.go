@@ -1,0 +1,90 @@
+package fit
+
+import (
+	"math"
+	"testing"
+)
+
+// Average marginal effects agree with finite differences of predicted
+// probabilities; predicted probabilities sum to one on every row; the
+// delta-method standard errors agree with a numerical Jacobian.
+func TestPredictionsAndMarginalEffects(t *testing.T) {
+	d := gssData(t) // General Social Survey 1977/1989 extract, Long (1997)
+	K := len(d.Predictors)
+	for _, m := range []Model{
+		{Comparison: Cumulative, Link: Logit, Effects: []Effect{Nonparallel, Nonparallel, Parallel, Parallel, Parallel, Parallel}},
+		{Comparison: Stage, Link: Probit, Effects: []Effect{Nonparallel, Parallel, Parallel, Parallel, Parallel, Parallel}},
+		{Comparison: Adjacent, Link: Logit, Effects: []Effect{Constrained, Constrained, Parallel, Parallel, Parallel, Parallel}},
+	} {
+		r := fitOK(t, d, m)
+		pred, err := r.Predict(d.X[:50*K], nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i := 0; i < pred.N; i++ {
+			s := 0.0
+			for j := 0; j < pred.J; j++ {
+				s += pred.Prob[i*pred.J+j]
+			}
+			if math.Abs(s-1) > 1e-12 {
+				t.Fatalf("row %d: probabilities sum to %v", i, s)
+			}
+		}
+		// Delta-method SE of one prediction against a numerical Jacobian.
+		pr, _ := r.problem()
+		x := d.X[:K]
+		P := len(r.Estimates)
+		for j := 0; j < r.J; j++ {
+			g := make([]float64, P)
+			for a := 0; a < P; a++ {
+				h := 1e-6 * math.Max(1, math.Abs(r.Estimates[a]))
+				tp := append([]float64(nil), r.Estimates...)
+				tm := append([]float64(nil), r.Estimates...)
+				tp[a] += h
+				tm[a] -= h
+				pp, pm := make([]float64, r.J), make([]float64, r.J)
+				pr.probsAt(tp, x, 0, pp)
+				pr.probsAt(tm, x, 0, pm)
+				g[a] = (pp[j] - pm[j]) / (2 * h)
+			}
+			se := math.Sqrt(quadForm(g, r.Cov))
+			if !near(pred.SE[j], se, 1e-5, 1e-9) {
+				t.Errorf("%s: se of P(%d) %v, numerical %v", r.Name, j, pred.SE[j], se)
+			}
+		}
+		ames, err := r.AverageMarginalEffects(d, 0.95)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, me := range ames {
+			k := indexOf(d.Predictors, me.Predictor)
+			j := indexOf(r.Levels, me.Category)
+			fd := 0.0
+			for i := 0; i < d.N(); i++ {
+				x := append([]float64(nil), d.X[i*K:(i+1)*K]...)
+				p1, p0 := make([]float64, r.J), make([]float64, r.J)
+				if me.Discrete {
+					x[k] = 1
+					pr.probsAt(r.Estimates, x, 0, p1)
+					x[k] = 0
+					pr.probsAt(r.Estimates, x, 0, p0)
+					fd += p1[j] - p0[j]
+					continue
+				}
+				h := 1e-4 * math.Max(1, math.Abs(x[k]))
+				x[k] += h
+				pr.probsAt(r.Estimates, x, 0, p1)
+				x[k] -= 2 * h
+				pr.probsAt(r.Estimates, x, 0, p0)
+				fd += (p1[j] - p0[j]) / (2 * h)
+			}
+			fd /= float64(d.N())
+			if math.Abs(me.Effect-fd) > 1e-6 {
+				t.Errorf("%s: AME of %s on %s = %.10g, finite differences %.10g", r.Name, me.Predictor, me.Category, me.Effect, fd)
+			}
+			if !(me.SE > 0) {
+				t.Errorf("%s: AME se %v", r.Name, me.SE)
+			}
+		}
+	}
+}
