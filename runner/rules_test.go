@@ -1,0 +1,144 @@
+package runner
+
+import (
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+
+	"ordplan/plan"
+)
+
+func verdictOf(ro *RuleOutcome, id string) *Verdict {
+	for i := range ro.Verdicts {
+		if ro.Verdicts[i].Model == id {
+			return &ro.Verdicts[i]
+		}
+	}
+	return nil
+}
+
+// Wine bitterness (Randall 1989): models without a finite maximum are
+// rejected by reject_unconverged, with the separation named; the score
+// rule and the AIC choice run on the rest.
+func TestRuleRejectUnconverged(t *testing.T) {
+	r := runPlan(t, loadPlan(t, "wine_rules.yaml"), 0)
+	or := r.Outcomes[0]
+	ro := or.Rules[0]
+	for _, id := range []string{"cumulative/nonparallel/logit", "adjacent/nonparallel/logit"} {
+		v := verdictOf(ro, id)
+		if v == nil || v.Kept || !strings.Contains(v.Reason, "no_finite_maximum") || !strings.Contains(v.Reason, "temp") {
+			t.Errorf("%s: %+v", id, v)
+		}
+	}
+	if v := verdictOf(ro, "cumulative/parallel/logit"); v == nil || !v.Kept {
+		t.Errorf("parallel should be kept: %+v", v)
+	}
+	// The score rule tests parallel against partial (the nonparallel fit
+	// failed), so every survivor gets a verdict with numbers.
+	for _, v := range or.Rules[1].Verdicts {
+		if !strings.Contains(v.Reason, "chi2(") && !strings.Contains(v.Reason, "no less constrained") {
+			t.Errorf("score rule verdict without numbers: %+v", v)
+		}
+	}
+	if or.Chosen == nil {
+		t.Fatalf("nothing chosen: %s", or.Choice)
+	}
+	// choose by AIC, margin 0: the smallest AIC among the survivors.
+	best := math.Inf(1)
+	for _, v := range or.Rules[2].Verdicts {
+		f := or.Find(v.Model)
+		best = math.Min(best, f.Result.AIC)
+	}
+	if or.Chosen.Result.AIC != best {
+		t.Errorf("chosen AIC %v, best %v", or.Chosen.Result.AIC, best)
+	}
+}
+
+// On the General Social Survey extract (Long 1997), the LR rule follows the
+// chain parallel -> constrained -> partial -> nonparallel: the constrained
+// model is rejected against the partial one (chi2(2) = 32.14), the
+// parallel one kept against the constrained one (p = .108).
+func TestRuleRejectIfTestRejects(t *testing.T) {
+	r := runPlan(t, loadPlan(t, "gss_grid.yaml"), 0)
+	or := r.Outcomes[0]
+	ro := or.Rules[2]
+	if v := verdictOf(ro, "cumulative/constrained/logit"); v == nil || v.Kept || !strings.Contains(v.Reason, "chi2(2) = 32.140") {
+		t.Errorf("constrained: %+v", v)
+	}
+	if v := verdictOf(ro, "cumulative/parallel/logit"); v == nil || !v.Kept || !strings.Contains(v.Reason, "p = 0.1082") {
+		t.Errorf("parallel: %+v", v)
+	}
+	if v := verdictOf(ro, "cumulative/nonparallel/logit"); v == nil || !v.Kept {
+		t.Errorf("nonparallel: %+v", v)
+	}
+	// prefer_simpler: the chosen model has the fewest parameters among the
+	// survivors within 2 BIC of the best.
+	final := or.Rules[3]
+	best := math.Inf(1)
+	for _, v := range final.Verdicts {
+		best = math.Min(best, or.Find(v.Model).Result.BIC)
+	}
+	for _, v := range final.Verdicts {
+		f := or.Find(v.Model)
+		if f.Result.BIC <= best+2 && f.Result.NParams < or.Chosen.Result.NParams {
+			t.Errorf("%s is within the margin with fewer parameters than the chosen %s", f.ID, or.Chosen.ID)
+		}
+	}
+}
+
+// A data set whose category boundaries nearly cross makes the cumulative
+// nonparallel fit predict negative probabilities; the rule rejects it.
+func TestRuleRejectNegativeProbabilities(t *testing.T) {
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(3, 3))
+	var b strings.Builder
+	b.WriteString("y,x\n")
+	logistic := func(z float64) float64 { return 1 / (1 + math.Exp(-z)) }
+	for i := 0; i < 600; i++ {
+		x := -3 + 6*rng.Float64()
+		p1 := logistic(0.2 + 2.5*x)
+		p2 := math.Max(p1+0.02*(1-p1), logistic(0.6+0.3*x))
+		u := rng.Float64()
+		y := 3
+		if u < p1 {
+			y = 1
+		} else if u < p2 {
+			y = 2
+		}
+		b.WriteString(strconv.Itoa(y) + "," + strconv.FormatFloat(x, 'f', 4, 64) + "\n")
+	}
+	os.WriteFile(filepath.Join(dir, "cross.csv"), []byte(b.String()), 0o644)
+	src := `version: 1
+title: crossing
+data: {file: cross.csv}
+outcomes: [{column: y}]
+predictors: [x]
+models: {approaches: [cumulative, stage], levels: [parallel, nonparallel]}
+tests: {parallel_lines: []}
+rules:
+  - reject_negative_probabilities: true
+  - choose: {by: bic}
+`
+	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644)
+	p, err := plan.Load(filepath.Join(dir, "p.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := runPlan(t, p, 0)
+	or := r.Outcomes[0]
+	f := or.Find("cumulative/nonparallel/logit")
+	if f.Result.NegativeRows == 0 {
+		t.Fatalf("expected negative probabilities; status %s", f.Result.Status)
+	}
+	v := verdictOf(or.Rules[0], f.ID)
+	if v == nil || v.Kept || !strings.Contains(v.Reason, "negative predicted category probability") {
+		t.Errorf("verdict %+v", v)
+	}
+	if v := verdictOf(or.Rules[0], "stage/nonparallel/logit"); v == nil || !v.Kept {
+		t.Errorf("stage model must be kept: %+v", v)
+	}
+}
