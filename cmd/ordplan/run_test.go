@@ -1,0 +1,90 @@
+package main
+
+import (
+	"bytes"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// The bundled example plan runs end to end; a rerun is byte-identical; a
+// rerun with --previous on changed data says what changed.
+func TestRunExamplePlan(t *testing.T) {
+	if testing.Short() {
+		t.Skip("full grid")
+	}
+	dir := t.TempDir()
+	a, b := filepath.Join(dir, "a"), filepath.Join(dir, "b")
+	plan := filepath.Join("..", "..", "plans", "example.yaml")
+	for _, out := range []string{a, b} {
+		stdout, stderr, code := runCLI("run", plan, "--out", out, "--quiet")
+		if code != 0 {
+			t.Fatalf("exit %d: %s %s", code, stdout, stderr)
+		}
+		if !strings.Contains(stdout, "chosen:") {
+			t.Fatalf("stdout: %s", stdout)
+		}
+	}
+	for _, f := range []string{"decisions.json", "report.md", "report.html", "run.json"} {
+		x, err1 := os.ReadFile(filepath.Join(a, f))
+		y, err2 := os.ReadFile(filepath.Join(b, f))
+		if err1 != nil || err2 != nil || !bytes.Equal(x, y) {
+			t.Errorf("%s differs between runs (%v %v)", f, err1, err2)
+		}
+	}
+	// Changed data: drop the last 300 rows into a copy of the plan's folder.
+	cdir := filepath.Join(dir, "changed")
+	os.MkdirAll(filepath.Join(cdir, "data"), 0o755)
+	src, _ := os.ReadFile(filepath.Join("..", "..", "plans", "data", "quietstreets.csv"))
+	lines := strings.SplitAfter(string(src), "\n")
+	os.WriteFile(filepath.Join(cdir, "data", "quietstreets.csv"), []byte(strings.Join(lines[:len(lines)-300], "")), 0o644)
+	pl, _ := os.ReadFile(plan)
+	os.WriteFile(filepath.Join(cdir, "example.yaml"), pl, 0o644)
+	stdout, stderr, code := runCLI("run", filepath.Join(cdir, "example.yaml"), "--out", filepath.Join(dir, "c"), "--previous", a, "--quiet")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	if !strings.Contains(stdout, "change: The data file changed") || !strings.Contains(stdout, "rows used") {
+		t.Errorf("changes not reported: %s", stdout)
+	}
+}
+
+func TestRunAndCheckBadInput(t *testing.T) {
+	dir := t.TempDir()
+	write := func(name, s string) string {
+		p := filepath.Join(dir, name)
+		os.WriteFile(p, []byte(s), 0o644)
+		return p
+	}
+	write("d.csv", "y,a,b\n1,0.5,1\n2,0.1,0\n3,0.7,1\n1,0.2,0\n2,0.9,1\n3,0.3,0\n")
+	good := "version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [a, b]\nmodels: {levels: [parallel, nonparallel]}\nrules:\n  - choose: {by: aic}\n"
+	cases := []struct {
+		name, plan string
+		cmd        string
+		code       int
+		want       string
+	}{
+		{"unknown key", strings.Replace(good, "predictors:", "predictorz: [a]\npredictors:", 1), "check", 1, "predictorz"},
+		{"absent column", strings.Replace(good, "[a, b]", "[a, c]", 1), "check", 1, `"c"`},
+		{"unknown approach", strings.Replace(good, "{levels:", "{approaches: [sideways], levels:", 1), "check", 1, "sideways"},
+		{"undeclared category", strings.Replace(good, "{column: y}", "{column: y, categories: [\"1\", \"2\"]}", 1), "run", 1, `"3"`},
+		{"never observed", strings.Replace(good, "{column: y}", "{column: y, categories: [\"1\", \"2\", \"3\", \"4\"]}", 1), "run", 1, `category "4" is declared but never observed`},
+		{"valid", good, "check", 0, "plan is valid"},
+	}
+	for i, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			p := write("p"+string(rune('a'+i))+".yaml", c.plan)
+			stdout, stderr, code := runCLI(c.cmd, p, "--quiet")
+			if c.cmd == "check" {
+				stdout, stderr, code = runCLI(c.cmd, p)
+			}
+			if code != c.code || !strings.Contains(stdout+stderr, c.want) {
+				t.Fatalf("exit %d (want %d)\nstdout: %s\nstderr: %s", code, c.code, stdout, stderr)
+			}
+			if strings.Contains(stderr, "goroutine") {
+				t.Fatalf("panic: %s", stderr)
+			}
+		})
+	}
+}
