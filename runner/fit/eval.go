@@ -229,12 +229,13 @@ type scratch struct {
 
 func (p *problem) newScratch() *scratch {
 	kf, kp, q := len(p.freeCols), len(p.parCols), p.q
+	rows := min(blockRows, max(p.d.n, 1))
 	return &scratch{
-		uf: make([]float64, blockRows*kf), xp: make([]float64, blockRows*kp),
-		tmp: make([]float64, blockRows*max(kf, kp)), tmp2: make([]float64, blockRows*q),
+		uf: make([]float64, rows*kf), xp: make([]float64, rows*kp),
+		tmp: make([]float64, rows*max(kf, kp)), tmp2: make([]float64, rows*q),
 		L: make([]float64, q), g: make([]float64, q), h: make([]float64, q*q),
-		hb: make([]float64, blockRows*q*q), p: make([]float64, q+1),
-		eta: make([]float64, blockRows*q),
+		hb: make([]float64, rows*q*q), p: make([]float64, q+1),
+		eta: make([]float64, rows*q),
 	}
 }
 

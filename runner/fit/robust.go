@@ -1,0 +1,210 @@
+package fit
+
+import (
+	"fmt"
+	"sort"
+)
+
+// Sandwich covariance types.
+const (
+	CovRobust  = "robust"  // heteroskedasticity-consistent (HC1)
+	CovCluster = "cluster" // cluster-robust (CR1)
+)
+
+// SandwichInfo describes how a sandwich covariance was computed.
+type SandwichInfo struct {
+	Type     string  `json:"type"`
+	Clusters int     `json:"clusters,omitempty"`
+	Factor   float64 `json:"small_sample_factor"`
+	Formula  string  `json:"formula"`
+}
+
+// rowScores calls fn(i, s) with the score of row i in the parameters
+// (unweighted: d log P(y_i | x_i) / d theta).
+func (p *problem) rowScores(theta []float64, fn func(i int, s []float64)) error {
+	c := p.coefs(theta)
+	dv := p.derivs(theta)
+	q := p.q
+	L := make([]float64, q)
+	g := make([]float64, q)
+	s := make([]float64, len(theta))
+	x := p.d
+	for i := 0; i < x.n; i++ {
+		if x.weight(i) == 0 {
+			continue
+		}
+		p.linear(c, i, L)
+		if _, ok := p.ker.eval(L, x.y[i], g, nil); !ok {
+			return fmt.Errorf("row %d has a zero probability at the estimates", i+1)
+		}
+		xi := x.x[i*x.K : (i+1)*x.K]
+		u := p.rowColumns(theta, xi)
+		sg := 0.0
+		for m := 0; m < q; m++ {
+			sg += g[m]
+		}
+		for j, d := range dv {
+			if d.parallel {
+				s[j] = -xi[p.parCols[d.col]] * sg
+				continue
+			}
+			v := 0.0
+			for _, e := range d.c {
+				v += e.v * g[e.m]
+			}
+			s[j] = v * u[d.col]
+		}
+		fn(i, s)
+	}
+	return nil
+}
+
+// Sandwich returns the sandwich covariance A^-1 B A^-1 of a fit, where A is
+// the observed information and B the outer product of the scores:
+//
+//	frequency weights, no clusters: B = sum_i w_i s_i s_i'          factor N/(N-P)        (HC1)
+//	probability weights, no clusters: B = sum_i (w_i s_i)(w_i s_i)'  factor n/(n-P)        (HC1)
+//	clusters c: B = sum_c S_c S_c', S_c = sum_{i in c} w_i s_i       factor G/(G-1) (N-1)/(N-P) (CR1)
+//
+// with N the number of observations (sum of frequency weights, or rows for
+// probability weights), P the parameters and G the clusters. These are the
+// usual estimators of White (1980) and Liang & Zeger (1986) with their
+// customary small-sample factors.
+func Sandwich(d *Data, r *Result, clusters []string, probability bool) ([]float64, SandwichInfo, error) {
+	info := SandwichInfo{Type: CovRobust}
+	if !r.OK() {
+		return nil, info, fmt.Errorf("%s has no usable estimates", r.Name)
+	}
+	ly, err := newLayout(r.Model, d.J, d.Predictors)
+	if err != nil {
+		return nil, info, err
+	}
+	pr := newProblem(d.design(), r.Model, ly, 0)
+	theta := r.Estimates
+	P := len(theta)
+	a := pr.evaluate(theta, 2, false)
+	H := pr.hessian(theta, a, true)
+	A := make([]float64, P*P)
+	for i := range A {
+		A[i] = -H[i]
+	}
+	Ainv, err := invertSym(A, P)
+	if err != nil {
+		return nil, info, fmt.Errorf("the information of %s is singular", r.Name)
+	}
+	B := make([]float64, P*P)
+	w := func(i int) float64 {
+		if d.Weights == nil {
+			return 1
+		}
+		return d.Weights[i]
+	}
+	var N float64
+	if clusters != nil {
+		if len(clusters) != d.N() {
+			return nil, info, fmt.Errorf("%d cluster ids for %d rows", len(clusters), d.N())
+		}
+		info.Type = CovCluster
+		sums := map[string][]float64{}
+		err = pr.rowScores(theta, func(i int, s []float64) {
+			cs, ok := sums[clusters[i]]
+			if !ok {
+				cs = make([]float64, P)
+				sums[clusters[i]] = cs
+			}
+			for j := range s {
+				cs[j] += w(i) * s[j]
+			}
+		})
+		keys := make([]string, 0, len(sums))
+		for k := range sums {
+			keys = append(keys, k)
+		}
+		sort.Strings(keys)
+		for _, k := range keys {
+			addOuter(B, sums[k], 1)
+		}
+		info.Clusters = len(keys)
+	} else {
+		err = pr.rowScores(theta, func(i int, s []float64) {
+			if probability {
+				addOuter(B, s, w(i)*w(i))
+			} else {
+				addOuter(B, s, w(i))
+			}
+		})
+	}
+	if err != nil {
+		return nil, info, err
+	}
+	if probability {
+		N = float64(d.N())
+	} else {
+		N = d.nobs()
+	}
+	switch info.Type {
+	case CovCluster:
+		G := float64(info.Clusters)
+		if G < 2 {
+			return nil, info, fmt.Errorf("cluster-robust errors need at least 2 clusters, got %d", info.Clusters)
+		}
+		info.Factor = G / (G - 1) * (N - 1) / (N - float64(P))
+		info.Formula = "A^-1 B A^-1, B = sum over clusters of the summed weighted scores' outer products, times G/(G-1) (N-1)/(N-P)"
+	default:
+		info.Factor = N / (N - float64(P))
+		info.Formula = "A^-1 B A^-1, B = sum over rows of the outer products of the scores, times N/(N-P)"
+	}
+	V := sandwichProduct(Ainv, B, P)
+	for i := range V {
+		V[i] *= info.Factor
+	}
+	return V, info, nil
+}
+
+func addOuter(B, s []float64, w float64) {
+	P := len(s)
+	for a := 0; a < P; a++ {
+		if s[a] == 0 {
+			continue
+		}
+		wa := w * s[a]
+		for b := 0; b < P; b++ {
+			B[a*P+b] += wa * s[b]
+		}
+	}
+}
+
+func sandwichProduct(Ainv, B []float64, P int) []float64 {
+	T := make([]float64, P*P)
+	for i := 0; i < P; i++ {
+		for k := 0; k < P; k++ {
+			a := Ainv[i*P+k]
+			if a == 0 {
+				continue
+			}
+			for j := 0; j < P; j++ {
+				T[i*P+j] += a * B[k*P+j]
+			}
+		}
+	}
+	V := make([]float64, P*P)
+	for i := 0; i < P; i++ {
+		for k := 0; k < P; k++ {
+			t := T[i*P+k]
+			if t == 0 {
+				continue
+			}
+			for j := 0; j < P; j++ {
+				V[i*P+j] += t * Ainv[k*P+j]
+			}
+		}
+	}
+	// symmetrize
+	for i := 0; i < P; i++ {
+		for j := i + 1; j < P; j++ {
+			m := 0.5 * (V[i*P+j] + V[j*P+i])
+			V[i*P+j], V[j*P+i] = m, m
+		}
+	}
+	return V
+}
