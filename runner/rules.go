@@ -136,7 +136,15 @@ func judgeTest(r plan.Rule, p *plan.Plan, or *OutcomeResult, f *FitEntry) (bool,
 		}
 		return true, "no less constrained model of this approach and link has a usable fit, so the test cannot be computed"
 	}
-	t, note := ruleTest(r.Test, or, f, nb)
+	kind, note0 := r.Test, ""
+	if probabilityWeights(p) && kind != "wald" {
+		kind, note0 = "wald", fmt.Sprintf(" (probability weights: the Wald test replaces the %s test)", testName(r.Test))
+	}
+	t, note := ruleTest(kind, or, f, nb)
+	note = note0 + note
+	if probabilityWeights(p) && t.Name == "lr" {
+		t = missingTest("wald", "the Wald test is not defined for this pair and likelihood-ratio tests are not valid with probability weights")
+	}
 	if !t.OK {
 		return true, fmt.Sprintf("the %s test against %s cannot be computed (%s)%s", testName(t.Name), nb.ID, t.Reason, note)
 	}

@@ -35,7 +35,10 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 	}
 	sum := sha256.Sum256(raw)
 	res := &Result{Plan: p, DataHash: hex.EncodeToString(sum[:]), Version: Version}
-	res.Notes = append(res.Notes, fmt.Sprintf("Standard errors from the %s.", covarianceName(p.Covariance)))
+	res.Notes = append(res.Notes, fmt.Sprintf("Standard errors from the %s.", covarianceName(covarianceOf(p))))
+	if probabilityWeights(p) {
+		res.Notes = append(res.Notes, "The weights are probability (sampling) weights: the fits maximize a pseudo-likelihood, standard errors are sandwich estimates, likelihood-ratio, score and Brant tests are not valid and are replaced by Wald tests, and AIC/BIC are descriptive only.")
+	}
 	for _, oc := range p.Outcomes {
 		or, err := runOutcome(p, oc, opt)
 		if err != nil {
@@ -50,21 +53,41 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 // silently ignoring them.
 func supported(p *plan.Plan) error {
 	switch p.Covariance {
-	case "", "oim", "eim":
+	case "", "oim", "eim", "robust", "cluster":
 	default:
-		return fmt.Errorf("%s: covariance: %q standard errors are not available in ordplan %s (use oim or eim)", p.Path, p.Covariance, Version)
+		return fmt.Errorf("%s: covariance: unknown type %q (want oim, eim, robust or cluster)", p.Path, p.Covariance)
 	}
-	if p.Data.Weights != "" && p.Data.WeightKind == "probability" {
-		return fmt.Errorf("%s: data.weight_kind: probability weights need sandwich standard errors, not available in ordplan %s; use frequency weights or none", p.Path, Version)
+	if p.Covariance == "cluster" && p.Data.Cluster == "" {
+		return fmt.Errorf("%s: covariance: cluster needs data.cluster", p.Path)
 	}
 	return nil
 }
 
 func covarianceName(c string) string {
-	if c == "eim" {
+	switch c {
+	case "eim":
 		return "expected information (Fisher scoring form)"
+	case "robust":
+		return "sandwich estimator A^-1 B A^-1 (A the observed information, B the outer product of the row scores), times N/(N-P)"
+	case "cluster":
+		return "cluster-robust sandwich estimator (scores summed within clusters), times G/(G-1) (N-1)/(N-P) with G clusters"
 	}
 	return "observed information (inverse of minus the Hessian at the maximum)"
+}
+
+// probabilityWeights reports whether the plan's weights are sampling
+// weights: the likelihood is then a pseudo-likelihood.
+func probabilityWeights(p *plan.Plan) bool {
+	return p.Data.Weights != "" && p.Data.WeightKind == "probability"
+}
+
+// covarianceOf is the covariance a plan's fits use: probability weights
+// imply the sandwich.
+func covarianceOf(p *plan.Plan) string {
+	if probabilityWeights(p) && p.Covariance != "cluster" {
+		return "robust"
+	}
+	return p.Covariance
 }
 
 func runOutcome(p *plan.Plan, oc plan.Outcome, opt Options) (*OutcomeResult, error) {
@@ -81,6 +104,9 @@ func runOutcome(p *plan.Plan, oc plan.Outcome, opt Options) (*OutcomeResult, err
 	}
 	or := &OutcomeResult{Outcome: oc, Data: ds, FitData: FitData(ds)}
 	fopt := fit.Options{Covariance: p.Covariance, Workers: 1}
+	if fopt.Covariance != "eim" {
+		fopt.Covariance = "oim"
+	}
 	links := p.Models.Links
 	backward := p.Models.Direction == "backward"
 
@@ -90,7 +116,7 @@ func runOutcome(p *plan.Plan, oc plan.Outcome, opt Options) (*OutcomeResult, err
 	// 2. The grid of candidate fits and the auxiliary fits the tests need.
 	jobs, notes := gridJobs(p, or.FreeSets, backward)
 	or.Notes = append(or.Notes, notes...)
-	runJobs(jobs, or.FitData, fopt, opt, oc.Column)
+	runJobs(jobs, or.FitData, fopt, opt, oc.Column, sandwichFor(p, ds))
 	or.Fits = jobs
 
 	// 3. Tests of the parallel-lines assumption and nested LR tests.
@@ -236,7 +262,7 @@ func auxID(approach, pred, link string) string {
 
 // runJobs fits every entry, several at once; results land in their entry,
 // so the order of completion does not matter.
-func runJobs(jobs []*FitEntry, d *fit.Data, fopt fit.Options, opt Options, outcome string) {
+func runJobs(jobs []*FitEntry, d *fit.Data, fopt fit.Options, opt Options, outcome string, sandwich func(*fit.Result) error) {
 	var wg sync.WaitGroup
 	sem := make(chan struct{}, opt.Workers)
 	var mu sync.Mutex
@@ -253,6 +279,9 @@ func runJobs(jobs []*FitEntry, d *fit.Data, fopt fit.Options, opt Options, outco
 			m, err := e.Spec.Model()
 			if err == nil {
 				e.Result, err = fit.Fit(d, m, fopt)
+			}
+			if err == nil && sandwich != nil && e.Result.OK() {
+				err = sandwich(e.Result)
 			}
 			if err != nil {
 				e.Err = err.Error()
@@ -273,6 +302,29 @@ func runJobs(jobs []*FitEntry, d *fit.Data, fopt fit.Options, opt Options, outco
 		}()
 	}
 	wg.Wait()
+}
+
+// sandwichFor returns the step that replaces a fit's covariance by the
+// sandwich, or nil when the plan uses model-based errors.
+func sandwichFor(p *plan.Plan, ds *data.Dataset) func(*fit.Result) error {
+	cov := covarianceOf(p)
+	if cov != "robust" && cov != "cluster" {
+		return nil
+	}
+	d := FitData(ds)
+	var clusters []string
+	if cov == "cluster" {
+		clusters = ds.Cluster
+	}
+	prob := probabilityWeights(p)
+	return func(r *fit.Result) error {
+		V, info, err := fit.Sandwich(d, r, clusters, prob)
+		if err != nil {
+			return fmt.Errorf("%s: sandwich covariance: %w", r.Name, err)
+		}
+		r.UseCovariance(V, info.Type)
+		return nil
+	}
 }
 
 // Find returns the fit with the given id.

@@ -24,8 +24,15 @@ func testBlock(p *plan.Plan, or *OutcomeResult, approach, link string, fopt fit.
 	id := func(level string) string { return approach + "/" + level + "/" + link }
 	par, np := or.Find(id(LevelParallel)), or.Find(id(LevelNonparallel))
 	cumLogit := approach == "cumulative" && link == "logit"
+	pw := probabilityWeights(p)
 	var brant *fit.BrantResult
 	for _, name := range p.Tests.ParallelLines {
+		if pw && name != "wald" {
+			if name == "lr" || name == "score" || cumLogit {
+				tb.Global = append(tb.Global, missingTest(name, pseudoReason))
+			}
+			continue
+		}
 		switch name {
 		case "lr":
 			tb.Global = append(tb.Global, lrOf(par, np))
@@ -55,6 +62,9 @@ func testBlock(p *plan.Plan, or *OutcomeResult, approach, link string, fopt fit.
 	for k, pred := range p.Predictors {
 		vt := VarTests{Predictor: pred}
 		for _, name := range p.Tests.ParallelLines {
+			if pw && name != "wald" {
+				continue
+			}
 			switch name {
 			case "brant":
 				if brant != nil && brant.OK {
@@ -96,10 +106,18 @@ func testBlock(p *plan.Plan, or *OutcomeResult, approach, link string, fopt fit.
 		if r == nil || f == nil || r.Auxiliary && f.Auxiliary {
 			continue
 		}
-		tb.Nested = append(tb.Nested, NestedTest{Restricted: r.ID, Full: f.ID, Test: lrOf(r, f)})
+		t := lrOf(r, f)
+		if pw {
+			t = missingTest("lr", pseudoReason)
+		}
+		tb.Nested = append(tb.Nested, NestedTest{Restricted: r.ID, Full: f.ID, Test: t})
 	}
 	return tb
 }
+
+// pseudoReason says why likelihood-based tests are not reported with
+// probability weights.
+const pseudoReason = "not valid with probability weights: the fits maximize a pseudo-likelihood; use the Wald test"
 
 func lrOf(r, f *FitEntry) fit.Test {
 	if r == nil || f == nil || r.Result == nil || f.Result == nil {

@@ -2,6 +2,7 @@ package fit
 
 import (
 	"fmt"
+	"math"
 	"sort"
 )
 
@@ -207,4 +208,16 @@ func sandwichProduct(Ainv, B []float64, P int) []float64 {
 		}
 	}
 	return V
+}
+
+// UseCovariance replaces the covariance of a fit (and its standard errors)
+// by V, recording its type.
+func (r *Result) UseCovariance(V []float64, kind string) {
+	P := len(r.Estimates)
+	r.Cov = V
+	r.CovType = kind
+	r.StdErrors = make([]float64, P)
+	for i := 0; i < P; i++ {
+		r.StdErrors[i] = math.Sqrt(math.Max(V[i*P+i], 0))
+	}
 }

@@ -1,0 +1,73 @@
+package runner
+
+import (
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+
+	"ordplan/plan"
+)
+
+// Cluster-robust errors on the invented example data (clusters: district),
+// and probability weights, which turn likelihood-ratio tests into Wald
+// tests and say so.
+func TestRunRobustAndProbabilityWeights(t *testing.T) {
+	dir := t.TempDir()
+	src, err := os.ReadFile(filepath.Join("..", "plans", "data", "quietstreets.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(src)), "\n")
+	var b strings.Builder
+	b.WriteString(lines[0] + ",sw\n")
+	for i, l := range lines[1:] {
+		b.WriteString(l + "," + strconv.Itoa(1+i%3) + "\n")
+	}
+	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
+	base := `version: 1
+title: robust
+data: {file: d.csv, cluster: district%s}
+outcomes: [{column: safety, categories: [very_unsafe, unsafe, neutral, safe, very_safe]}]
+predictors: [pilot, female, age]
+models: {approaches: [cumulative], levels: [parallel, partial, nonparallel], partial: {free: [pilot]}}
+tests: {parallel_lines: [brant, lr, wald]}
+rules:
+  - reject_if_test_rejects: {test: lr, alpha: 0.05}
+  - choose: {by: bic}
+covariance: cluster
+`
+	run := func(extra string) *OutcomeResult {
+		os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(strings.Replace(base, "%s", extra, 1)), 0o644)
+		p, err := plan.Load(filepath.Join(dir, "p.yaml"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		r, err := Run(p, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return r.Outcomes[0]
+	}
+	or := run("")
+	f := or.Find("cumulative/partial/logit")
+	if f.Result.CovType != "cluster" {
+		t.Fatalf("covariance %s", f.Result.CovType)
+	}
+	if findTest(or.Tests[0].Global, "lr").OK != true {
+		t.Errorf("LR test should be computed with frequency weights")
+	}
+	or = run(", weights: sw, weight_kind: probability")
+	lr := findTest(or.Tests[0].Global, "lr")
+	if lr.OK || !strings.Contains(lr.Reason, "pseudo-likelihood") {
+		t.Errorf("LR with probability weights: %+v", lr)
+	}
+	if w := findTest(or.Tests[0].Global, "wald"); !w.OK {
+		t.Errorf("Wald should be computed: %+v", w)
+	}
+	v := verdictOf(or.Rules[0], "cumulative/parallel/logit")
+	if v == nil || !strings.Contains(v.Reason, "the Wald test replaces the likelihood-ratio test") {
+		t.Errorf("verdict %+v", v)
+	}
+}
