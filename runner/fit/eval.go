@@ -4,6 +4,7 @@ import (
 	"math"
 	"runtime"
 	"sync"
+	"time"
 
 	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/blas/blas64"
@@ -43,6 +44,7 @@ type problem struct {
 	freeOf   []int // predictor -> its per-equation column (or -1)
 	parOf    []int // predictor -> its parallel column (or -1)
 	pairs    [][2]int
+	prof     *profile // optional timing of the cross-products
 }
 
 func newProblem(d *design, m Model, ly *layout, workers int) *problem {
@@ -354,6 +356,10 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 		return
 	}
 	tmp := s.tmp
+	if p.prof != nil {
+		t0 := time.Now()
+		defer func() { p.prof.add(time.Since(t0)) }()
+	}
 	// Per-equation x per-equation blocks for each needed pair.
 	for pi, pr := range p.pairs {
 		m, l := pr[0], pr[1]

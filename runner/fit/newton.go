@@ -61,20 +61,26 @@ func (p *problem) newton(theta0 []float64, maxIter int, scoring bool) newtonStat
 			return st
 		}
 		// Step halving: accept the first step that raises the log-likelihood
-		// and keeps every observed category's probability positive.
+		// and keeps every observed category's probability positive. The
+		// full step is evaluated with derivatives, since it is nearly always
+		// accepted and the next iteration needs them at that point.
 		step := 1.0
-		accepted := false
+		var next *acc
 		for h := 0; h < 60; h++ {
-			next := addScaled(theta, d, step)
-			b := p.evaluate(next, 0, scoring)
+			cand := addScaled(theta, d, step)
+			order := 0
+			if h == 0 {
+				order = 2
+			}
+			b := p.evaluate(cand, order, scoring)
 			if !b.bad && !math.IsNaN(b.ll) && (b.ll > ll || (dec < 1e-6*math.Max(1, math.Abs(ll)) && b.ll >= ll-1e-12*math.Max(1, math.Abs(ll)))) {
-				theta = next
-				accepted = true
+				theta = cand
+				next = b
 				break
 			}
 			step /= 2
 		}
-		if !accepted {
+		if next == nil {
 			st.reason = "no step raises the log-likelihood"
 			// The point may still be an optimum to working precision.
 			if pd && dec <= 1e-8*math.Max(1, math.Abs(ll)) {
@@ -83,7 +89,10 @@ func (p *problem) newton(theta0 []float64, maxIter int, scoring bool) newtonStat
 			}
 			return st
 		}
-		a = p.evaluate(theta, 2, scoring)
+		if next.order < 2 {
+			next = p.evaluate(theta, 2, scoring)
+		}
+		a = next
 		ll = a.ll
 	}
 }
