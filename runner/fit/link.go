@@ -47,8 +47,8 @@ func (l Link) lower(z float64) tail {
 	switch l {
 	case Logit:
 		// log F = -log(1+e^-z); d = 1-F; d2 = -F(1-F)
-		F, Fc := logistic(z)
-		return tail{-softplus(-z), Fc, -F * Fc}
+		v, F, Fc := logitTail(z)
+		return tail{v, Fc, -F * Fc}
 	case Probit:
 		v := logPhi(z)
 		lam := millsInv(z) // phi(z)/Phi(z)
@@ -87,7 +87,10 @@ func (l Link) lower(z float64) tail {
 // upper returns log(1-F(z)) and its derivatives.
 func (l Link) upper(z float64) tail {
 	switch l {
-	case Logit, Probit, Cauchit:
+	case Logit:
+		v, Fc, F := logitTail(-z)
+		return tail{v, -F, -F * Fc}
+	case Probit, Cauchit:
 		t := l.lower(-z)
 		return tail{t.v, -t.d1, t.d2}
 	case Cloglog:
@@ -156,6 +159,17 @@ func (l Link) logDensity(z float64) (float64, float64) {
 		return -math.Log(math.Pi) - math.Log1p(z*z), -2 * z / (1 + z*z)
 	}
 	panic("fit: unknown link")
+}
+
+// logitTail returns log F(z), F(z) and 1-F(z) for the logistic F with one
+// exponential and one logarithm.
+func logitTail(z float64) (float64, float64, float64) {
+	if z >= 0 {
+		e := math.Exp(-z)
+		return -math.Log1p(e), 1 / (1 + e), e / (1 + e)
+	}
+	e := math.Exp(z)
+	return z - math.Log1p(e), e / (1 + e), 1 / (1 + e)
 }
 
 // logistic returns F(z) and 1-F(z) without cancellation.
