@@ -45,6 +45,7 @@ type problem struct {
 	parOf    []int // predictor -> its parallel column (or -1)
 	pairs    [][2]int
 	prof     *profile // optional timing of the cross-products
+	scratch  sync.Pool // *scratch, reused across evaluations
 }
 
 func newProblem(d *design, m Model, ly *layout, workers int) *problem {
@@ -204,7 +205,11 @@ func (p *problem) evaluate(theta []float64, order int, expected bool) *acc {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			s := p.newScratch()
+			s, _ := p.scratch.Get().(*scratch)
+			if s == nil {
+				s = p.newScratch()
+			}
+			defer p.scratch.Put(s)
 			for b := range next {
 				lo := b * blockRows
 				hi := min(lo+blockRows, n)
