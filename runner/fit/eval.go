@@ -44,7 +44,7 @@ type problem struct {
 	freeOf   []int // predictor -> its per-equation column (or -1)
 	parOf    []int // predictor -> its parallel column (or -1)
 	pairs    [][2]int
-	prof     *profile // optional timing of the cross-products
+	prof     *profile  // optional timing of the cross-products
 	scratch  sync.Pool // *scratch, reused across evaluations
 }
 
