@@ -33,6 +33,9 @@ type Options struct {
 	Workers    int       // goroutines over row blocks (default GOMAXPROCS)
 	Start      []float64 // starting values in parameter order (optional)
 	Scoring    bool      // Fisher scoring instead of Newton-Raphson
+	// RandomStarts is the number of random starts of a model with
+	// constrained predictors: 0 means 5, a negative number none.
+	RandomStarts int
 }
 
 // Status of a fit.
@@ -85,6 +88,17 @@ type Result struct {
 	NegativeRows  int     // rows with a negative predicted category probability
 	Separation    *Separation
 	SupLogLik     float64 // log-likelihood reached when there is no finite maximum
+
+	// Models with constrained predictors: every start of the search for the
+	// maximum, the number that reached the best log-likelihood (within
+	// 1e-6), and notes on phi (e.g. equation-1 slopes small relative to the
+	// others).
+	Starts         []StartRecord
+	StartsAgreeing int
+	PhiNotes       []string
+	// PhiOther: for constraint groups whose slopes vanish in equation 1 at
+	// the maximum (StatusNotIdentified), phi normalized by another equation.
+	PhiOther []PhiNormalization
 }
 
 // Separation describes a fit with no finite maximum.
@@ -139,13 +153,15 @@ func Fit(d *Data, m Model, opt Options) (*Result, error) {
 	des := d.design()
 	pr := newProblem(des, m, ly, opt.Workers)
 	start := opt.Start
-	if start == nil {
-		start, err = startValues(d, m, ly, opt)
-		if err != nil {
-			return nil, err
-		}
-	} else if len(start) != len(ly.params) {
+	if start != nil && len(start) != len(ly.params) {
 		return nil, inputErr("start has %d values for %d parameters", len(start), len(ly.params))
+	}
+	if len(ly.groups) > 0 {
+		// Constrained predictors: several starts, the best kept.
+		return multiStart(d, m, ly, pr, opt)
+	}
+	if start == nil {
+		start = startValues(d, m, ly)
 	}
 	st := pr.newton(start, opt.MaxIter, opt.Scoring)
 	return finish(d, m, ly, pr, st, opt), nil
@@ -235,47 +251,15 @@ func (d *Data) validate() error {
 	return nil
 }
 
-// startValues: cutpoints from the marginal distribution with zero slopes;
-// for constrained models gamma from the parallel fit and phi = 1.
-func startValues(d *Data, m Model, ly *layout, opt Options) ([]float64, error) {
+// startValues: cutpoints from the marginal distribution with zero slopes.
+// (Models with constrained predictors start from several points instead:
+// see multiStart.)
+func startValues(d *Data, m Model, ly *layout) []float64 {
 	theta := make([]float64, len(ly.params))
-	copy(theta, marginalCutpoints(d, m))
-	if len(constrainedPredictors(m)) == 0 {
-		return theta, nil
+	for j, t := range marginalCutpoints(d, m) {
+		theta[ly.cut[j]] = t
 	}
-	par := m
-	par.Effects = make([]Effect, len(m.Effects))
-	for k, e := range m.Effects {
-		if e == Nonparallel {
-			par.Effects[k] = Nonparallel
-		}
-	}
-	o := opt
-	o.Start = nil
-	r, err := Fit(d, par, o)
-	if err != nil {
-		return nil, err
-	}
-	for j := 0; j < d.J-1; j++ {
-		theta[ly.cut[j]] = r.Cutpoints[j]
-	}
-	for k, e := range m.Effects {
-		s := ly.slope[k]
-		switch e {
-		case Parallel, Constrained:
-			theta[s] = r.Effects[0][k]
-		case Nonparallel:
-			for j := 0; j < d.J-1; j++ {
-				theta[s+j] = r.Effects[j][k]
-			}
-		}
-	}
-	for dg := range ly.groups {
-		for j := 1; j < d.J-1; j++ {
-			theta[ly.phiIndex[dg][j]] = 1
-		}
-	}
-	return theta, nil
+	return theta
 }
 
 // marginalCutpoints gives the cutpoints that reproduce the marginal
