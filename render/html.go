@@ -2,35 +2,70 @@ package render
 
 import (
 	"bytes"
+	"fmt"
 	"html"
+	"strings"
 
 	"github.com/yuin/goldmark"
 	"github.com/yuin/goldmark/extension"
-
-	"ordplan/runner"
 )
 
 const css = `body{font-family:system-ui,-apple-system,"Segoe UI",sans-serif;max-width:1100px;margin:2em auto;padding:0 1em;color:#1b1b1b;line-height:1.45}
 table{border-collapse:collapse;margin:0.6em 0 1.2em;font-size:0.9em}th,td{border:1px solid #ccc;padding:0.25em 0.6em;text-align:left;vertical-align:top}
 th{background:#f2f2f2}tr:nth-child(even) td{background:#fafafa}code{background:#f4f4f4;padding:0 0.2em}h2{border-bottom:2px solid #ddd;padding-bottom:0.2em;margin-top:2em}
-.chart{margin:1em 0}`
+.chart-group{display:flex;flex-wrap:wrap;gap:1em;margin:1em 0 1.5em}.chart-figure{flex:1 1 480px;margin:0;border:1px solid #e3e3e3;padding:0.5em;min-width:0}
+.chart-figure.wide{flex-basis:100%}.chart{width:100%}figcaption{font-size:0.85em;color:#444;margin-top:0.3em}
+#js-errors{white-space:pre-wrap;color:#a00;border:2px solid #a00;padding:0.5em;margin:1em 0}#js-errors:empty{display:none}`
 
-// HTML renders the self-contained report.html from the Markdown.
-func HTML(r *runner.Result, md []byte) ([]byte, error) {
+// errorScript runs first: any script error on the page, or message to
+// console.error, is written into the #js-errors box, so a reader (or a
+// test) sees that a chart failed.
+const errorScript = `window.ordplanError=function(msg){var e=document.getElementById("js-errors");if(e){e.appendChild(document.createTextNode(String(msg)+"\n"));}};
+window.onerror=function(msg,src,line){window.ordplanError("script error: "+msg+" (line "+line+")");};
+(function(){var ce=console.error;console.error=function(){window.ordplanError("console.error: "+Array.prototype.join.call(arguments," "));return ce.apply(console,arguments);};})();`
+
+// drawScript draws one chart and marks its element with data-rendered="1".
+const drawScript = `function ordplanDraw(id,option){var el=document.getElementById(id);try{var c=echarts.init(el,null,{renderer:"canvas"});c.setOption(option);el.setAttribute("data-rendered","1");window.addEventListener("resize",function(){c.resize();});}catch(e){window.ordplanError(id+": "+e);}}`
+
+// html renders the self-contained report.html: the report's Markdown as
+// HTML, each chart group where report.md has its note, the chart library
+// and the chart options inline.
+func (d *doc) html(title string) ([]byte, error) {
+	d.flush()
 	conv := goldmark.New(goldmark.WithExtensions(extension.Table))
-	var body bytes.Buffer
-	if err := conv.Convert(md, &body); err != nil {
-		return nil, err
-	}
-	title := r.Plan.Title
-	if r.Plan.Report.Title != "" {
-		title = r.Plan.Report.Title
-	}
 	var out bytes.Buffer
-	out.WriteString("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n<title>")
+	out.WriteString("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n")
+	out.WriteString("<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n<title>")
 	out.WriteString(html.EscapeString(title))
-	out.WriteString("</title>\n<style>" + css + "</style>\n</head>\n<body>\n")
-	out.Write(body.Bytes())
+	out.WriteString("</title>\n<style>" + css + "</style>\n")
+	out.WriteString("<script>\n" + errorScript + "\n</script>\n</head>\n<body>\n<div id=\"js-errors\" role=\"alert\"></div>\n")
+	for _, pt := range d.parts {
+		if pt.charts == nil {
+			if err := conv.Convert([]byte(pt.md), &out); err != nil {
+				return nil, err
+			}
+			continue
+		}
+		out.WriteString("<div class=\"chart-group\">\n")
+		for _, c := range pt.charts {
+			class := "chart-figure"
+			if len(pt.charts) == 1 {
+				class += " wide"
+			}
+			fmt.Fprintf(&out, "<figure class=\"%s\"><div class=\"chart\" id=\"%s\" style=\"height:%dpx\"></div><figcaption>%s</figcaption></figure>\n",
+				class, c.id, c.height, html.EscapeString(c.caption))
+		}
+		out.WriteString("</div>\n")
+	}
+	if cs := d.allCharts(); len(cs) > 0 {
+		out.WriteString("<script>\n/* Apache ECharts 5.6.0, Apache License 2.0 */\n")
+		out.WriteString(strings.TrimRight(echartsJS, "\n"))
+		out.WriteString("\n</script>\n<script>\n" + drawScript + "\n")
+		for _, c := range cs {
+			fmt.Fprintf(&out, "ordplanDraw(%q,%s);\n", c.id, c.option)
+		}
+		out.WriteString("</script>\n")
+	}
 	out.WriteString("</body>\n</html>\n")
 	return out.Bytes(), nil
 }

@@ -11,13 +11,14 @@ func Outputs(r *runner.Result, dec *runner.Decisions, changes []string) (map[str
 	if err != nil {
 		return nil, err
 	}
-	files := map[string][]byte{"decisions.json": b}
-	md := Markdown(r, dec, changes)
-	files["report.md"] = md
-	html, err := HTML(r, md)
+	d := build(r, dec, changes)
+	page, err := d.html(reportTitle(r))
 	if err != nil {
 		return nil, err
 	}
-	files["report.html"] = html
-	return files, nil
+	return map[string][]byte{
+		"decisions.json": b,
+		"report.md":      d.markdown(),
+		"report.html":    page,
+	}, nil
 }

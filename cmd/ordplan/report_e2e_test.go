@@ -1,0 +1,147 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"image/png"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"regexp"
+	"strings"
+	"testing"
+	"time"
+)
+
+const chromiumPath = "/usr/bin/chromium"
+
+// chromium runs the headless browser once on page with extra flags and
+// returns its standard output and standard error. The page must work
+// offline: every host name fails to resolve.
+func chromium(t *testing.T, profile, page string, extra ...string) (string, string) {
+	t.Helper()
+	ctx, cancel := context.WithTimeout(context.Background(), 2*time.Minute)
+	defer cancel()
+	args := []string{"--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking",
+		"--disable-component-update", "--disable-sync", "--no-first-run", "--hide-scrollbars",
+		"--host-resolver-rules=MAP * ~NOTFOUND", "--user-data-dir=" + profile,
+		"--virtual-time-budget=5000", "--enable-logging=stderr", "--v=0"}
+	args = append(append(args, extra...), "file://"+page)
+	cmd := exec.CommandContext(ctx, chromiumPath, args...)
+	var out, errb bytes.Buffer
+	cmd.Stdout, cmd.Stderr = &out, &errb
+	if err := cmd.Run(); err != nil {
+		t.Fatalf("chromium %s: %v\n%s", strings.Join(extra, " "), err, tail(errb.String(), 2000))
+	}
+	return out.String(), errb.String()
+}
+
+func tail(s string, n int) string {
+	if len(s) > n {
+		return s[len(s)-n:]
+	}
+	return s
+}
+
+var (
+	chartDiv   = regexp.MustCompile(`<div class="chart" id="(chart-\d+)"`)
+	errorsBox  = regexp.MustCompile(`(?s)<div id="js-errors"[^>]*>(.*?)</div>`)
+	scriptBody = regexp.MustCompile(`(?s)(<script[^>]*>).*?</script>`)
+	loadsFile  = regexp.MustCompile(`(?i)<(script|link|img|iframe|object|embed)\b[^>]*\b(src|href|data)=`)
+)
+
+// TestReportRendersInBrowser runs the example plan and opens report.html
+// in headless Chromium without a network: every chart must be drawn (its
+// element marked data-rendered="1" and holding a canvas) and the page
+// must report no script error.
+func TestReportRendersInBrowser(t *testing.T) {
+	if testing.Short() {
+		t.Skip("browser test skipped in -short mode")
+	}
+	if _, err := os.Stat(chromiumPath); err != nil {
+		t.Skipf("browser test skipped: %s is not installed (Debian: apt-get install -y chromium)", chromiumPath)
+	}
+	dir := t.TempDir()
+	out := filepath.Join(dir, "out")
+	stdout, stderr, code := runCLI("run", filepath.Join("..", "..", "plans", "example.yaml"), "--out", out, "--quiet")
+	if code != 0 {
+		t.Fatalf("ordplan run: exit %d\n%s%s", code, stdout, stderr)
+	}
+	page, err := filepath.Abs(filepath.Join(out, "report.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	src, err := os.ReadFile(page)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Offline: no element loads a file (script bodies, which may hold such
+	// text in strings, are left out of the search).
+	if m := loadsFile.Find(scriptBody.ReplaceAll(src, []byte("$1</script>"))); m != nil {
+		t.Errorf("report.html loads a file: %s", m)
+	}
+	var ids []string
+	for _, m := range chartDiv.FindAllSubmatch(src, -1) {
+		ids = append(ids, string(m[1]))
+	}
+	// At least the criteria chart, one predictor across boundaries and the
+	// predictions.
+	if len(ids) < 3 {
+		t.Fatalf("report.html has %d charts %v, want at least 3", len(ids), ids)
+	}
+
+	// One browser run both prints the DOM after the scripts ran and takes
+	// a screenshot of the top of the page.
+	shot := filepath.Join(dir, "report.png")
+	dom, logs := chromium(t, filepath.Join(dir, "profile"), page, "--dump-dom", "--screenshot="+shot, "--window-size=1280,4000")
+	for _, id := range ids {
+		start := strings.Index(dom, `id="`+id+`"`)
+		if start < 0 {
+			t.Errorf("%s: not in the rendered page", id)
+			continue
+		}
+		end := strings.Index(dom[start:], "</figure>")
+		if end < 0 {
+			t.Errorf("%s: no end of its figure", id)
+			continue
+		}
+		el := dom[start : start+end]
+		tag := el[:strings.Index(el, ">")]
+		if !strings.Contains(tag, `data-rendered="1"`) {
+			t.Errorf("%s: not marked as drawn: <div %s>", id, tag)
+		}
+		if !strings.Contains(el, "<canvas") {
+			t.Errorf("%s: no canvas inside", id)
+		}
+	}
+	m := errorsBox.FindStringSubmatch(dom)
+	if m == nil {
+		t.Error("no #js-errors box in the rendered page")
+	} else if strings.TrimSpace(m[1]) != "" {
+		t.Errorf("script errors on the page:\n%s", m[1])
+	}
+	for _, line := range strings.Split(logs, "\n") {
+		if strings.Contains(line, ":CONSOLE") {
+			t.Errorf("browser console: %s", line)
+		}
+	}
+
+	f, err := os.Open(shot)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	img, err := png.Decode(f)
+	if err != nil {
+		t.Fatalf("screenshot: %v", err)
+	}
+	if b := img.Bounds(); b.Dx() != 1280 || b.Dy() != 4000 {
+		t.Errorf("screenshot is %dx%d, want 1280x4000", b.Dx(), b.Dy())
+	}
+	if keep := os.Getenv("ORDPLAN_SCREENSHOT_DIR"); keep != "" {
+		b, _ := os.ReadFile(shot)
+		if err := os.WriteFile(filepath.Join(keep, "report.png"), b, 0o644); err != nil {
+			t.Error(err)
+		}
+	}
+}

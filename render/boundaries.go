@@ -1,0 +1,201 @@
+package render
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"github.com/go-echarts/go-echarts/v2/charts"
+	"github.com/go-echarts/go-echarts/v2/opts"
+
+	"ordplan/numfmt"
+	"ordplan/runner"
+	"ordplan/runner/fit"
+)
+
+// writeBoundaryEffects shows, for the chosen model's approach and link,
+// each predictor's slope at every boundary in the nonparallel model with
+// its interval, against the one slope of the parallel model: the picture
+// of the parallel-lines assumption.
+func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
+	d.h(3, "Effects across boundaries")
+	ch := or.Chosen
+	if ch == nil {
+		d.p("No model was chosen, so there is no approach and link to draw the effects of.")
+		return
+	}
+	level, z := confidence(r)
+	npID := ch.Approach + "/" + runner.LevelNonparallel + "/" + ch.Link
+	np := or.Find(npID)
+	switch {
+	case np == nil:
+		d.p("Not drawn: the plan fitted no %s model.", npID)
+		return
+	case !np.OK():
+		d.p("Not drawn: %s has no usable estimates (%s).", npID, fitProblem(np))
+		return
+	}
+	parID := ch.Approach + "/" + runner.LevelParallel + "/" + ch.Link
+	par := or.Find(parID)
+	if !par.OK() {
+		par = nil
+	}
+	var chosen *fit.Result
+	if ch.Level != runner.LevelParallel && ch.Level != runner.LevelNonparallel {
+		chosen = ch.Result
+	}
+	res := np.Result
+	q := res.J - 1
+	d.p("Slope of each predictor at each category boundary in %s, with %s intervals (estimate ± %s × standard error), next to the single slope of %s. Where the boundary slopes stay close to the parallel slope, within their intervals, one slope per predictor describes the data well; a trend across boundaries is what the parallel-lines tests detect. Cells give the estimate and, in brackets, its standard error.",
+		npID, pct(level), numfmt.Fixed(z, 3), parallelName(par, parID))
+	bounds := make([]string, q)
+	head := []string{"Predictor"}
+	for m := 0; m < q; m++ {
+		bounds[m] = res.Levels[m] + "|" + res.Levels[m+1]
+		head = append(head, fmt.Sprintf("b[%d] %s", m+1, bounds[m]))
+	}
+	if ch.Level == runner.LevelParallel {
+		head = append(head, "parallel (chosen)")
+	} else {
+		head = append(head, "parallel")
+	}
+	if chosen != nil {
+		head = append(head, ch.Level+" (chosen)")
+	}
+	var rows [][]string
+	var cs []*chart
+	var skipped []string
+	for k, pred := range res.Predictors {
+		est, se, ok := boundarySlopes(res, k)
+		if !ok {
+			skipped = append(skipped, pred)
+			continue
+		}
+		row := []string{pred}
+		for m := range est {
+			row = append(row, fmt.Sprintf("%s (%s)", numfmt.Num(est[m]), numfmt.Num(se[m])))
+		}
+		row = append(row, slopeCell(par, pred, k))
+		if chosen != nil {
+			row = append(row, chosenCell(chosen, k))
+		}
+		rows = append(rows, row)
+		cs = append(cs, boundaryChart(d, pred, bounds, est, se, z, level, par, chosen, ch.Level, k))
+	}
+	if len(rows) > 0 {
+		d.table(head, rows)
+	}
+	if len(skipped) > 0 {
+		d.p("Not drawn for %s: the nonparallel fit gives no finite standard error for every boundary.", strings.Join(skipped, ", "))
+	}
+	d.charts("Charts in report.html: the slope of each predictor across the boundaries, one chart per predictor.", cs...)
+}
+
+func parallelName(par *runner.FitEntry, id string) string {
+	if par == nil {
+		return "the parallel model (" + id + " has no usable estimates, so its line is missing)"
+	}
+	return id
+}
+
+func fitProblem(f *runner.FitEntry) string {
+	if f.Result == nil {
+		return "not fitted: " + f.Err
+	}
+	if f.Result.Message != "" {
+		return string(f.Result.Status) + ": " + f.Result.Message
+	}
+	return string(f.Result.Status)
+}
+
+// boundarySlopes returns the slopes of predictor k at every boundary of a
+// nonparallel fit and their standard errors (parameters name[m]); ok is
+// false when a standard error is missing or not a positive finite number.
+func boundarySlopes(res *fit.Result, k int) (est, se []float64, ok bool) {
+	q := res.J - 1
+	est, se = make([]float64, q), make([]float64, q)
+	for m := 0; m < q; m++ {
+		est[m] = res.Effects[m][k]
+		i := paramIndex(res, fmt.Sprintf("%s[%d]", res.Predictors[k], m+1))
+		if i < 0 {
+			return nil, nil, false
+		}
+		se[m] = res.StdErrors[i]
+		if !(se[m] > 0) || math.IsInf(se[m], 0) || math.IsNaN(est[m]) {
+			return nil, nil, false
+		}
+	}
+	return est, se, true
+}
+
+func paramIndex(res *fit.Result, name string) int {
+	for i, n := range res.ParamNames {
+		if n == name {
+			return i
+		}
+	}
+	return -1
+}
+
+// slopeCell is the parallel slope of a predictor with its standard error.
+func slopeCell(par *runner.FitEntry, pred string, k int) string {
+	if par == nil {
+		return "n/a"
+	}
+	i := paramIndex(par.Result, pred)
+	if i < 0 {
+		return numfmt.Num(par.Result.Effects[0][k])
+	}
+	return fmt.Sprintf("%s (%s)", numfmt.Num(par.Result.Estimates[i]), numfmt.Num(par.Result.StdErrors[i]))
+}
+
+// chosenCell lists the chosen model's slopes of predictor k at every
+// boundary.
+func chosenCell(res *fit.Result, k int) string {
+	parts := make([]string, len(res.Effects))
+	for m := range res.Effects {
+		parts[m] = numfmt.Num(res.Effects[m][k])
+	}
+	return strings.Join(parts, ", ")
+}
+
+// boundaryChart draws one predictor's slopes across the boundaries.
+func boundaryChart(d *doc, pred string, bounds []string, est, se []float64, z, level float64, par *runner.FitEntry, chosen *fit.Result, chosenLevel string, k int) *chart {
+	id := d.chartID()
+	q := len(bounds)
+	lo, hi := make([]float64, q), make([]float64, q)
+	for m := range est {
+		lo[m], hi[m] = est[m]-z*se[m], est[m]+z*se[m]
+	}
+	band := pct(level) + " interval"
+	l := charts.NewLine()
+	l.SetGlobalOptions(append(baseOpts(id, pred, "slope at each boundary", 340,
+		opts.Grid{Left: "4%", Right: "6%", Top: "60", Bottom: "60"}),
+		charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: "boundary", NameLocation: "middle", NameGap: 28,
+			AxisLabel: &opts.AxisLabel{Interval: "0", FontSize: 10}}),
+		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: "slope", Scale: opts.Bool(true)}))...)
+	l.SetXAxis(bounds)
+	l.AddSeries("nonparallel", lineData(est), lineStyle(colorEstimate, 2.5, false, true)...)
+	// Both bounds carry the same name, so the legend shows one entry.
+	l.AddSeries(band, lineData(lo), lineStyle(colorEstimate, 1, true, false)...)
+	l.AddSeries(band, lineData(hi), lineStyle(colorEstimate, 1, true, false)...)
+	caption := fmt.Sprintf("%s: nonparallel slope at each boundary with its %s (dashed)", pred, band)
+	if chosen != nil {
+		cv := make([]float64, q)
+		for m := range cv {
+			cv[m] = chosen.Effects[m][k]
+		}
+		l.AddSeries(chosenLevel+" (chosen)", lineData(cv), lineStyle(colorChosen, 2, true, true)...)
+		caption += ", the slopes of the chosen " + chosenLevel + " model (green, dashed)"
+	}
+	// The parallel line comes last so that it is drawn on top.
+	if par != nil {
+		flat := make([]float64, q)
+		for m := range flat {
+			flat[m] = par.Result.Effects[m][k]
+		}
+		l.AddSeries("parallel", lineData(flat), lineStyle(colorParallel, 2, false, false)...)
+		caption += ", and the parallel slope (flat line)"
+	}
+	return newChart(id, 340, caption+".", l)
+}

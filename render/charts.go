@@ -1,0 +1,127 @@
+package render
+
+import (
+	"fmt"
+	"html/template"
+	"math"
+	"strconv"
+	"strings"
+
+	"github.com/go-echarts/go-echarts/v2/charts"
+	"github.com/go-echarts/go-echarts/v2/opts"
+)
+
+// chart is one chart of report.html: its element id, its size, a caption
+// and the option object the chart library draws from.
+type chart struct {
+	id      string
+	height  int // pixels; the width follows the page
+	caption string
+	option  string // JSON
+}
+
+// echartsChart is what every go-echarts chart type offers.
+type echartsChart interface {
+	Validate()
+	JSONNotEscaped() template.HTML
+}
+
+// newChart takes the option JSON of a go-echarts chart. The JSON object's
+// keys come out sorted and the numbers were rounded by val, so the same
+// inputs give the same text. "<" is escaped so that no label can end the
+// inline script the option is written into.
+func newChart(id string, height int, caption string, c echartsChart) *chart {
+	c.Validate()
+	js := strings.TrimSpace(string(c.JSONNotEscaped()))
+	js = strings.ReplaceAll(js, "<", `\u003c`)
+	return &chart{id: id, height: height, caption: caption, option: js}
+}
+
+// baseOpts are the options every chart of the report shares: the fixed
+// element id (go-echarts draws a random one otherwise), no animation (the
+// chart is complete as soon as it is drawn), an axis tooltip and a legend
+// at the bottom, and the plot area's margins.
+func baseOpts(id, title, subtitle string, height int, grid opts.Grid) []charts.GlobalOpts {
+	grid.ContainLabel = opts.Bool(true)
+	return []charts.GlobalOpts{
+		charts.WithInitializationOpts(opts.Initialization{ChartID: id, Width: "100%", Height: strconv.Itoa(height) + "px"}),
+		charts.WithAnimation(false),
+		charts.WithTitleOpts(opts.Title{Title: title, Subtitle: subtitle, Left: "center",
+			TitleStyle: &opts.TextStyle{FontSize: 14}}),
+		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "axis"}),
+		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Bottom: "0"}),
+		charts.WithGridOpts(grid),
+	}
+}
+
+// val rounds a number to six significant digits for a chart; a value
+// that is not finite becomes the library's mark for a missing point.
+func val(x float64) any {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return "-"
+	}
+	v, _ := strconv.ParseFloat(strconv.FormatFloat(x, 'g', 6, 64), 64)
+	if v == 0 {
+		return 0.0 // no negative zero
+	}
+	return v
+}
+
+// lineData turns values into line points.
+func lineData(vs []float64) []opts.LineData {
+	out := make([]opts.LineData, len(vs))
+	for i, v := range vs {
+		out[i] = opts.LineData{Value: val(v)}
+	}
+	return out
+}
+
+// xyData turns x, y pairs into points of a line on a value axis.
+func xyData(xs, ys []float64) []opts.LineData {
+	out := make([]opts.LineData, len(xs))
+	for i := range xs {
+		out[i] = opts.LineData{Value: []any{val(xs[i]), val(ys[i])}}
+	}
+	return out
+}
+
+// lineStyle is a series style: colour, width, dashed or not, symbols or not.
+func lineStyle(color string, width float32, dashed, symbols bool) []charts.SeriesOpts {
+	kind := "solid"
+	if dashed {
+		kind = "dashed"
+	}
+	o := []charts.SeriesOpts{
+		charts.WithLineStyleOpts(opts.LineStyle{Color: color, Width: width, Type: kind}),
+		charts.WithItemStyleOpts(opts.ItemStyle{Color: color}),
+		charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(symbols), Symbol: "circle"}),
+	}
+	return o
+}
+
+// categoryAnchors run from the lowest category (red) to the highest
+// (blue); categoryColor spreads the categories of an outcome over them, so
+// neighbouring categories get neighbouring colours.
+var categoryAnchors = [][3]float64{{0xc0, 0x39, 0x2b}, {0xe6, 0x7e, 0x22}, {0xb7, 0x95, 0x0b}, {0x16, 0xa0, 0x85}, {0x24, 0x71, 0xa3}}
+
+// categoryColor is the colour of category j of J.
+func categoryColor(j, J int) string {
+	if J < 2 {
+		return "#2471a3"
+	}
+	t := float64(j) / float64(J-1) * float64(len(categoryAnchors)-1)
+	i := min(int(t), len(categoryAnchors)-2)
+	f := t - float64(i)
+	var rgb [3]int
+	for c := range rgb {
+		rgb[c] = int(math.Round(categoryAnchors[i][c]*(1-f) + categoryAnchors[i+1][c]*f))
+	}
+	return fmt.Sprintf("#%02x%02x%02x", rgb[0], rgb[1], rgb[2])
+}
+
+// Colours of the series of the boundary charts.
+const (
+	colorEstimate = "#4269d0"
+	colorParallel = "#ff725c"
+	colorChosen   = "#3ca951"
+)

@@ -1,0 +1,55 @@
+package render
+
+import (
+	"fmt"
+	"strings"
+
+	"github.com/go-echarts/go-echarts/v2/charts"
+	"github.com/go-echarts/go-echarts/v2/opts"
+
+	"ordplan/runner"
+)
+
+// criteriaChart draws AIC and BIC of every candidate with a finite
+// maximum, in the order of the model table; the chosen model is a larger
+// diamond. It returns nil when no candidate has one.
+func criteriaChart(d *doc, or *runner.OutcomeResult) *chart {
+	var names []string
+	var aic, bic []opts.ScatterData
+	var missing []string
+	for _, f := range or.Fits {
+		if f.Auxiliary {
+			continue
+		}
+		if !f.OK() {
+			missing = append(missing, f.ID)
+			continue
+		}
+		name := f.ID
+		sym, size := "circle", 9
+		if f.Verdict == "chosen" {
+			name += " (chosen)"
+			sym, size = "diamond", 18
+		}
+		names = append(names, name)
+		aic = append(aic, opts.ScatterData{Value: val(f.Result.AIC), Symbol: sym, SymbolSize: size})
+		bic = append(bic, opts.ScatterData{Value: val(f.Result.BIC), Symbol: sym, SymbolSize: size})
+	}
+	if len(names) == 0 {
+		return nil
+	}
+	id := d.chartID()
+	caption := "AIC and BIC of each candidate model (smaller is better); the chosen model is the large diamond. BIC charges more for each parameter than AIC once there are more than seven observations."
+	if len(missing) > 0 {
+		caption += fmt.Sprintf(" Not shown, for want of a finite maximum or a fit: %s.", strings.Join(missing, ", "))
+	}
+	s := charts.NewScatter()
+	s.SetGlobalOptions(append(baseOpts(id, "Information criteria of the candidate models", or.Outcome.Label, 440,
+		opts.Grid{Left: "4%", Right: "4%", Top: "70", Bottom: "50"}),
+		charts.WithXAxisOpts(opts.XAxis{Type: "category", AxisLabel: &opts.AxisLabel{Rotate: 30, Interval: "0", FontSize: 11}}),
+		charts.WithYAxisOpts(opts.YAxis{Name: "criterion", Type: "value", Scale: opts.Bool(true)}))...)
+	s.SetXAxis(names)
+	s.AddSeries("AIC", aic, charts.WithItemStyleOpts(opts.ItemStyle{Color: colorEstimate}))
+	s.AddSeries("BIC", bic, charts.WithItemStyleOpts(opts.ItemStyle{Color: colorParallel}))
+	return newChart(id, 440, caption, s)
+}

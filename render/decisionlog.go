@@ -1,0 +1,37 @@
+package render
+
+import (
+	"ordplan/runner"
+)
+
+func writeDecisionLog(d *doc, or *runner.OutcomeResult) {
+	d.h(3, "Decision log")
+	for _, f := range or.Fits {
+		if !f.Auxiliary && f.Err != "" {
+			d.p("- %s could not be fitted: %s", f.ID, f.Err)
+		}
+	}
+	for i, ro := range or.Rules {
+		d.p("**Rule %d, `%s`** (plan line %d). %s", i+1, ro.Rule.Kind, ro.Rule.Line, ro.Description)
+		choosing := ro.Rule.Kind == "choose" || ro.Rule.Kind == "prefer_simpler"
+		var rows [][]string
+		for _, v := range ro.Verdicts {
+			verdict := "kept"
+			switch {
+			case !v.Kept && choosing:
+				verdict = "not chosen"
+			case !v.Kept:
+				verdict = "rejected"
+			case choosing:
+				verdict = "chosen"
+			}
+			rows = append(rows, []string{v.Model, verdict, v.Reason})
+		}
+		if len(rows) == 0 {
+			d.p("No model was left for this rule.")
+			continue
+		}
+		d.table([]string{"Model", "Verdict", "Why"}, rows)
+	}
+	d.p("**Result:** %s.", or.Choice)
+}

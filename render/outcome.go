@@ -1,0 +1,111 @@
+package render
+
+import (
+	"fmt"
+	"strings"
+
+	"ordplan/numfmt"
+	"ordplan/runner"
+)
+
+// writeOutcome writes everything about one outcome, in the order a
+// reviewer checks it: data, candidates, tests, decisions, then the
+// effects across boundaries for the chosen approach and what the chosen
+// model says.
+func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
+	d.h(2, "Outcome: "+or.Outcome.Label)
+	writeData(d, or)
+	writeFreeSets(d, or)
+	writeModelTable(d, or)
+	writeTests(d, or)
+	writeDecisionLog(d, or)
+	writeBoundaryEffects(d, r, or)
+	if or.Chosen == nil {
+		d.p("No model was chosen, so the report shows no estimates, predicted probabilities or marginal effects for this outcome.")
+		return
+	}
+	writeChosen(d, r, or)
+	writePredictions(d, r, or)
+	writeMarginalEffects(d, r, or)
+}
+
+func writeData(d *doc, or *runner.OutcomeResult) {
+	ds := or.Data
+	d.h(3, "Data")
+	d.p("Outcome column `%s`, %d categories in this order: %s. %d rows read, %d used; %s. Observations (sum of weights): %s.",
+		or.Outcome.Column, len(ds.Levels), strings.Join(ds.Levels, " < "), ds.RowsRead, ds.N, ds.DropSummary(), numfmt.Num(ds.NObs()))
+	var rows [][]string
+	for j, l := range ds.Levels {
+		rows = append(rows, []string{l, numfmt.Num(ds.Counts[j]), numfmt.Fixed(100*ds.Counts[j]/ds.NObs(), 1) + "%"})
+	}
+	d.table([]string{"Category", "Count", "Share"}, rows)
+}
+
+func writeFreeSets(d *doc, or *runner.OutcomeResult) {
+	d.h(3, "Partial sets")
+	var rows [][]string
+	for _, fs := range or.FreeSets {
+		set := strings.Join(fs.Predictors, ", ")
+		if set == "" {
+			set = "(none)"
+		}
+		rows = append(rows, []string{fs.Approach, set, fs.Source})
+	}
+	d.table([]string{"Approach", "Predictors allowed to vary", "Source"}, rows)
+	for _, s := range or.Stepwise {
+		d.p("**Stepwise selection, %s %s** (start: every predictor nonparallel; at each step the free predictor with the largest p-value at or above %g is made parallel):", s.Approach, s.Link, s.Result.Alpha)
+		if !s.Result.OK {
+			d.p("Not computed: %s.", s.Result.Reason)
+			continue
+		}
+		var rows [][]string
+		for _, st := range s.Result.Steps {
+			var parts []string
+			for _, t := range st.Tests {
+				parts = append(parts, fmt.Sprintf("%s chi2(%d)=%s p=%s", t.Name, t.DF, numfmt.Fixed(t.Chi2, 2), numfmt.PValue(t.P)))
+			}
+			imposed := st.Imposed
+			if imposed == "" {
+				imposed = "(stop)"
+			}
+			rows = append(rows, []string{fmt.Sprint(st.Step), numfmt.Fixed(st.LogLik, 3), strings.Join(parts, "; "), imposed})
+		}
+		d.table([]string{"Step", "Log-likelihood", "Tests of equal slopes", "Made parallel"}, rows)
+		if t := s.Result.FinalTest; t.OK {
+			d.p("Joint test that every predictor made parallel has equal slopes: chi2(%d) = %s, p = %s.", t.DF, numfmt.Fixed(t.Chi2, 2), numfmt.PValue(t.P))
+		}
+	}
+}
+
+func writeModelTable(d *doc, or *runner.OutcomeResult) {
+	d.h(3, "The models")
+	var rows [][]string
+	for _, f := range or.Fits {
+		if f.Auxiliary {
+			continue
+		}
+		rows = append(rows, modelRow(f))
+	}
+	d.table([]string{"Model", "Status", "Log-likelihood", "Parameters", "AIC", "BIC", "Rows with P<0", "Verdict"}, rows)
+	for _, n := range or.Notes {
+		d.p("%s.", n)
+	}
+	if c := criteriaChart(d, or); c != nil {
+		d.charts("Chart in report.html: AIC and BIC of every candidate model.", c)
+	}
+}
+
+func modelRow(f *runner.FitEntry) []string {
+	id := f.ID
+	if f.Verdict == "chosen" {
+		id = "**" + id + "** (chosen)"
+	}
+	if f.Result == nil {
+		return []string{id, "not fitted: " + f.Err, "", "", "", "", "", f.Verdict}
+	}
+	res := f.Result
+	if !res.OK() {
+		return []string{id, string(res.Status), "no finite value", fmt.Sprint(res.NParams), "", "", "", f.Verdict}
+	}
+	return []string{id, string(res.Status), numfmt.Fixed(res.LogLik, 3), fmt.Sprint(res.NParams), numfmt.Fixed(res.AIC, 2), numfmt.Fixed(res.BIC, 2), fmt.Sprint(res.NegativeRows), f.Verdict}
+}

@@ -1,0 +1,60 @@
+package render
+
+import (
+	"fmt"
+
+	"ordplan/numfmt"
+	"ordplan/runner"
+	"ordplan/runner/fit"
+)
+
+func writeTests(d *doc, or *runner.OutcomeResult) {
+	d.h(3, "Tests of the parallel-lines assumption")
+	d.p("Each test compares the model with one slope per predictor against the model with a slope per category boundary. Small p-values speak against parallel lines; in large samples they reject even differences too small to matter.")
+	for _, tb := range or.Tests {
+		d.h(4, tb.Approach+", "+tb.Link)
+		var rows [][]string
+		for _, t := range tb.Global {
+			rows = append(rows, testRow(testLabel(t.Name)+" (all predictors)", t))
+		}
+		for _, vt := range tb.PerVariable {
+			for _, t := range vt.Tests {
+				rows = append(rows, testRow(testLabel(t.Name)+": "+vt.Predictor, t))
+			}
+		}
+		if len(rows) > 0 {
+			d.table([]string{"Test", "Chi-square", "df", "p"}, rows)
+		}
+		rows = nil
+		for _, nt := range tb.Nested {
+			rows = append(rows, testRow(nt.Restricted+" within "+nt.Full, nt.Test))
+		}
+		if len(rows) > 0 {
+			d.p("Nested likelihood-ratio tests:")
+			d.table([]string{"Restricted within full", "Chi-square", "df", "p"}, rows)
+		}
+	}
+}
+
+func testRow(label string, t fit.Test) []string {
+	if !t.OK {
+		return []string{label, "", "", "not computed: " + t.Reason}
+	}
+	return []string{label, numfmt.Fixed(t.Chi2, 3), fmt.Sprint(t.DF), numfmt.PValue(t.P)}
+}
+
+func testLabel(n string) string {
+	switch n {
+	case "lr":
+		return "Likelihood ratio"
+	case "wald":
+		return "Wald"
+	case "score":
+		return "Score"
+	case "brant":
+		return "Brant"
+	case "wolfe_gould":
+		return "Wolfe-Gould"
+	}
+	return n
+}

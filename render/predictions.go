@@ -1,0 +1,137 @@
+package render
+
+import (
+	"fmt"
+
+	"github.com/go-echarts/go-echarts/v2/charts"
+	"github.com/go-echarts/go-echarts/v2/opts"
+
+	"ordplan/numfmt"
+	"ordplan/runner"
+)
+
+// Points of the focus predictor in the table and in the chart.
+const (
+	tablePoints = 7
+	chartPoints = 41
+)
+
+// writePredictions writes the predicted category probabilities of the
+// chosen model over the focus predictor, as a table and a chart.
+func writePredictions(d *doc, r *runner.Result, or *runner.OutcomeResult) {
+	res := or.Chosen.Result
+	d.h(3, "Predicted probabilities")
+	pf, err := newProfile(or.FitData, focusName(r))
+	if err != nil {
+		d.p("Not computed: %s.", err)
+		return
+	}
+	xs := pf.grid(tablePoints)
+	pred, err := pf.predict(res, xs)
+	if err != nil {
+		d.p("Not computed: %s.", err)
+		return
+	}
+	span := fmt.Sprintf("goes over %d evenly spaced values from its smallest to its largest value in the data", len(xs))
+	if pf.binary {
+		span = "is 0 and 1"
+	} else if len(xs) == 1 {
+		span = "is at its only value in the data"
+	}
+	d.p("Probability of each category under the chosen model when `%s` %s, with %s. Standard errors, in brackets, are delta-method approximations from the model's covariance matrix.",
+		pf.focus, span, pf.heldAt(or.FitData))
+	head := []string{pf.focus}
+	for _, l := range res.Levels {
+		head = append(head, "P("+l+")")
+	}
+	head = append(head, "Negative?")
+	var rows [][]string
+	neg := 0
+	for i, x := range xs {
+		row := []string{numfmt.Num(x)}
+		for j := 0; j < pred.J; j++ {
+			row = append(row, fmt.Sprintf("%s (%s)", numfmt.Fixed(pred.Prob[i*pred.J+j], 4), numfmt.Fixed(pred.SE[i*pred.J+j], 4)))
+		}
+		flag := "no"
+		if pred.Negative[i] {
+			flag = "**yes**"
+			neg++
+		}
+		rows = append(rows, append(row, flag))
+	}
+	d.table(head, rows)
+	if neg == 0 {
+		d.p("No predicted probability in this table is negative.")
+	} else {
+		d.p("**Warning:** at %d of these %d values of `%s` the model predicts a negative probability for some category (its cumulative probabilities cross there). Those rows are not valid probability distributions; read the model with care in that region.", neg, len(xs), pf.focus)
+	}
+	c, err := predictionChart(d, or, pf)
+	if err != nil {
+		d.p("The chart of these predictions was not drawn: %s.", err)
+		return
+	}
+	d.charts(fmt.Sprintf("Chart in report.html: predicted probability of each category against `%s`.", pf.focus), c)
+}
+
+var predictionGrid = opts.Grid{Left: "6%", Right: "8%", Top: "70", Bottom: "70"}
+
+// predictionChart draws the predicted probabilities against the focus
+// predictor: stacked bars at 0 and 1 for a 0/1 predictor, else one line
+// per category over a finer grid than the table's.
+func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile) (*chart, error) {
+	res := or.Chosen.Result
+	xs := pf.grid(chartPoints)
+	pred, err := pf.predict(res, xs)
+	if err != nil {
+		return nil, err
+	}
+	neg := 0
+	for _, n := range pred.Negative {
+		if n {
+			neg++
+		}
+	}
+	id := d.chartID()
+	title := "Predicted probabilities by " + pf.focus
+	sub := or.Chosen.ID + "; other predictors at their means"
+	caption := fmt.Sprintf("Predicted probability of each category of %s under %s as %s varies, other predictors at their means.", or.Outcome.Column, or.Chosen.ID, pf.focus)
+	if neg > 0 {
+		caption += fmt.Sprintf(" At %d of the %d points drawn some probability is negative.", neg, len(xs))
+	}
+	probs := func(j int) []float64 {
+		out := make([]float64, len(xs))
+		for i := range xs {
+			out[i] = pred.Prob[i*pred.J+j]
+		}
+		return out
+	}
+	yAxis := opts.YAxis{Name: "probability", Type: "value"}
+	if pf.binary {
+		caption += " Each bar is the whole distribution at one value, split by category."
+		b := charts.NewBar()
+		b.SetGlobalOptions(append(baseOpts(id, title, sub, 420, predictionGrid),
+			charts.WithXAxisOpts(opts.XAxis{Name: pf.focus, Type: "category"}),
+			charts.WithYAxisOpts(opts.YAxis{Name: "probability", Type: "value", Max: 1}))...)
+		b.SetXAxis([]string{"0", "1"})
+		for j, l := range res.Levels {
+			data := make([]opts.BarData, len(xs))
+			for i, p := range probs(j) {
+				data[i] = opts.BarData{Value: val(p)}
+			}
+			b.AddSeries(l, data, charts.WithBarChartOpts(opts.BarChart{Stack: "probability", BarWidth: "40%"}),
+				charts.WithItemStyleOpts(opts.ItemStyle{Color: categoryColor(j, len(res.Levels))}))
+		}
+		return newChart(id, 420, caption, b), nil
+	}
+	l := charts.NewLine()
+	l.SetGlobalOptions(append(baseOpts(id, title, sub, 420, predictionGrid),
+		charts.WithXAxisOpts(opts.XAxis{Name: pf.focus, Type: "value", Min: val(xs[0]), Max: val(xs[len(xs)-1]),
+			// The ends of the range are not round numbers: no labels there,
+			// so they do not crowd the nearest round tick.
+			AxisLabel: &opts.AxisLabel{ShowMinLabel: opts.Bool(false), ShowMaxLabel: opts.Bool(false)}}),
+		charts.WithYAxisOpts(yAxis))...)
+	for j, lv := range res.Levels {
+		l.AddSeries(lv, xyData(xs, probs(j)), lineStyle(categoryColor(j, len(res.Levels)), 2, false, false)...)
+	}
+	return newChart(id, 420, caption, l), nil
+}

@@ -1,0 +1,179 @@
+package render
+
+import (
+	"encoding/json"
+	"fmt"
+	"math"
+	"regexp"
+	"strings"
+	"testing"
+
+	"ordplan/plan"
+	"ordplan/runner"
+	"ordplan/runner/fit"
+)
+
+func TestProfileGrid(t *testing.T) {
+	d := &fit.Data{Predictors: []string{"b", "c", "k"}, Y: []int{0, 1, 1, 0}, J: 2,
+		X: []float64{0, 2, 5, 1, 8, 5, 1, 2, 5, 0, 4, 5}, Weights: []float64{1, 1, 1, 3}}
+	pf, err := newProfile(d, "b")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !pf.binary || fmt.Sprint(pf.grid(7)) != "[0 1]" {
+		t.Errorf("0/1 predictor: binary %v, grid %v", pf.binary, pf.grid(7))
+	}
+	// Weighted means: b (0+1+1+0)/6 = 1/3, c (2+8+2+3*4)/6 = 4.
+	if math.Abs(pf.means[0]-2.0/6) > 1e-15 || pf.means[1] != 4 || pf.means[2] != 5 {
+		t.Errorf("means %v", pf.means)
+	}
+	pf, _ = newProfile(d, "c")
+	if pf.binary || fmt.Sprint(pf.grid(7)) != "[2 3 4 5 6 7 8]" {
+		t.Errorf("continuous predictor: binary %v, grid %v", pf.binary, pf.grid(7))
+	}
+	pf, _ = newProfile(d, "k")
+	if fmt.Sprint(pf.grid(7)) != "[5]" {
+		t.Errorf("constant predictor: grid %v", pf.grid(7))
+	}
+	if _, err := newProfile(d, "zz"); err == nil {
+		t.Error("unknown focus predictor accepted")
+	}
+}
+
+func TestValAndColors(t *testing.T) {
+	if v := val(0.1234567891); v != 0.123457 {
+		t.Errorf("val rounds to %v", v)
+	}
+	if v := val(math.NaN()); v != "-" {
+		t.Errorf("val(NaN) = %v", v)
+	}
+	if b, _ := json.Marshal(val(math.Copysign(0, -1))); string(b) != "0" {
+		t.Errorf("negative zero written as %s", b)
+	}
+	for _, c := range []struct {
+		j, J int
+		want string
+	}{{0, 5, "#c0392b"}, {2, 5, "#b7950b"}, {4, 5, "#2471a3"}, {0, 2, "#c0392b"}, {1, 2, "#2471a3"}, {1, 3, "#b7950b"}} {
+		if got := categoryColor(c.j, c.J); got != c.want {
+			t.Errorf("categoryColor(%d, %d) = %s, want %s", c.j, c.J, got, c.want)
+		}
+	}
+}
+
+func TestBoundarySlopesNeedStandardErrors(t *testing.T) {
+	res := &fit.Result{J: 3, Predictors: []string{"a"}, Effects: [][]float64{{1}, {2}},
+		ParamNames: []string{"cut1", "cut2", "a[1]", "a[2]"}, StdErrors: []float64{1, 1, 0.5, 0.25}}
+	est, se, ok := boundarySlopes(res, 0)
+	if !ok || fmt.Sprint(est, se) != "[1 2] [0.5 0.25]" {
+		t.Errorf("got %v %v %v", est, se, ok)
+	}
+	res.StdErrors[3] = math.NaN()
+	if _, _, ok := boundarySlopes(res, 0); ok {
+		t.Error("a slope without a standard error was drawn")
+	}
+}
+
+// crossingFit is a cumulative nonparallel logit whose estimates are then
+// set so that the two cumulative probabilities cross for x < -0.5:
+// L_1 = -0.5 - x and L_2 = 0.5 + x.
+func crossingFit(t *testing.T) (*fit.Data, *fit.Result) {
+	t.Helper()
+	d := &fit.Data{J: 3, Predictors: []string{"x"}}
+	for i := 0; i < 60; i++ {
+		x := -2 + 4*float64(i)/59
+		d.X = append(d.X, x)
+		d.Y = append(d.Y, (i*7)%3)
+	}
+	spec, err := runner.LevelSpec("cumulative", false, "logit", runner.LevelNonparallel, d.Predictors, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m, err := spec.Model()
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := fit.Fit(d, m, fit.Options{Workers: 1})
+	if err != nil || !res.OK() {
+		t.Fatalf("fit: %v %v", err, res)
+	}
+	set := map[string]float64{"cut1": -0.5, "cut2": 0.5, "x[1]": 1, "x[2]": -1}
+	for i, n := range res.ParamNames {
+		v, ok := set[n]
+		if !ok {
+			t.Fatalf("unexpected parameter %s", n)
+		}
+		res.Estimates[i] = v
+	}
+	return d, res
+}
+
+func TestPredictionsFlagNegativeProbabilities(t *testing.T) {
+	d, res := crossingFit(t)
+	r := &runner.Result{Plan: &plan.Plan{Predictors: []string{"x"}, Report: plan.Report{FocusPredictor: "x", ConfidenceLevel: 0.95}}}
+	or := &runner.OutcomeResult{Outcome: plan.Outcome{Column: "y", Label: "y"}, FitData: d,
+		Chosen: &runner.FitEntry{ID: "cumulative/nonparallel/logit", Approach: "cumulative", Level: runner.LevelNonparallel, Link: "logit", Result: res}}
+	doc := &doc{}
+	writePredictions(doc, r, or)
+	md := string(doc.markdown())
+	// The grid is -2, -4/3, -2/3, 0, ..., 2: three points lie below -0.5.
+	if got := strings.Count(md, "| **yes** |"); got != 3 {
+		t.Errorf("%d grid rows flagged negative, want 3:\n%s", got, md)
+	}
+	if !strings.Contains(md, "**Warning:** at 3 of these 7 values of `x`") {
+		t.Errorf("no warning:\n%s", md)
+	}
+	cs := doc.allCharts()
+	if len(cs) != 1 || !strings.Contains(cs[0].caption, "some probability is negative") {
+		t.Errorf("chart caption does not mention the negative probabilities: %+v", cs)
+	}
+}
+
+var drawCall = regexp.MustCompile(`(?m)^ordplanDraw\("(chart-\d+)",(.*)\);$`)
+
+// TestHTMLIsSelfContained checks the page of the golden run: every chart
+// element has exactly one draw call with a valid option object, the chart
+// library is inline, nothing is fetched, and report.md has a note for
+// every chart group.
+func TestHTMLIsSelfContained(t *testing.T) {
+	files := runGolden(t, 2)
+	page, md := string(files["report.html"]), string(files["report.md"])
+	divs := regexp.MustCompile(`<div class="chart" id="(chart-\d+)"`).FindAllStringSubmatch(page, -1)
+	calls := drawCall.FindAllStringSubmatch(page, -1)
+	if len(divs) == 0 || len(divs) != len(calls) {
+		t.Fatalf("%d chart elements, %d draw calls", len(divs), len(calls))
+	}
+	for i := range divs {
+		want := fmt.Sprintf("chart-%d", i+1)
+		if divs[i][1] != want || calls[i][1] != want {
+			t.Errorf("chart %d: element %s, call %s, want %s", i+1, divs[i][1], calls[i][1], want)
+		}
+		var opt struct {
+			Animation *bool             `json:"animation"`
+			Series    []json.RawMessage `json:"series"`
+		}
+		if err := json.Unmarshal([]byte(calls[i][2]), &opt); err != nil {
+			t.Errorf("%s: option is not JSON: %v", want, err)
+			continue
+		}
+		if opt.Animation == nil || *opt.Animation || len(opt.Series) == 0 {
+			t.Errorf("%s: animation %v, %d series", want, opt.Animation, len(opt.Series))
+		}
+	}
+	if strings.Count(page, echartsJS) != 1 {
+		t.Error("the chart library is not inline exactly once")
+	}
+	if regexp.MustCompile(`<script[^>]*\ssrc=|<link\s`).MatchString(page) {
+		t.Error("the page loads a file")
+	}
+	groups := strings.Count(page, `<div class="chart-group">`)
+	notes := len(regexp.MustCompile(`(?m)^\*Charts? in report\.html: `).FindAllString(md, -1))
+	if groups != notes {
+		t.Errorf("%d chart groups in report.html, %d notes in report.md", groups, notes)
+	}
+	for _, h := range []string{"## Summary", "### The models", "### Tests of the parallel-lines assumption", "### Decision log",
+		"### Effects across boundaries", "### Predicted probabilities", "### Average marginal effects", "## Assumptions and limits"} {
+		if !strings.Contains(md, "\n"+h+"\n") {
+			t.Errorf("report.md has no %q section", h)
+		}
+	}
+}
