@@ -356,68 +356,16 @@ func (a *auxiliary) normalizedFit(d *Data, m Model, ly *layout, pr *problem, res
 
 // newton maximizes the log-likelihood in this map's normalization, with
 // derivatives from the partial model's problem pp by the chain rule; the
-// steps, repair and stopping rules are those of the data fit.
+// steps, repair and stopping rules are those of the data fit (newtonLoop).
 func (r rankMap) newton(pp *problem, th0 []float64, maxIter int) newtonState {
-	eval2 := func(th []float64) (*acc, []float64, []float64) {
-		hth := r.h(th)
-		a := pp.evaluate(hth, 2, false)
-		if a.bad || math.IsNaN(a.ll) || math.IsInf(a.ll, 0) {
-			a.bad = true
-			return a, nil, nil
+	base := pp.evaluator(false)
+	return newtonLoop(th0, maxIter, func(th []float64, order int) evalOut {
+		out := base(r.h(th), order)
+		if !out.bad && order >= 2 {
+			out.g, out.H = r.chain(th, out.g, out.H)
 		}
-		g, H := r.chain(th, pp.gradient(hth, a), pp.hessian(hth, a, true))
-		return a, g, H
-	}
-	th := append([]float64(nil), th0...)
-	st := newtonState{}
-	a, g, H := eval2(th)
-	if a.bad {
-		st.theta, st.ll, st.reason = th, math.Inf(-1), "the starting values give a zero probability to an observed category"
-		return st
-	}
-	prevSmall := false
-	for it := 0; ; it++ {
-		ll := a.ll
-		st.theta, st.ll, st.grad, st.hess, st.iters = th, ll, g, H, it
-		d, dec, pd := newtonDirection(H, g)
-		st.decrement = dec
-		scale := math.Max(1, math.Abs(ll))
-		if pd && (dec <= 1e-16*scale || (prevSmall && dec <= 1e-10*scale)) {
-			next := addScaled(th, d, 1)
-			if b, g2, H2 := eval2(next); !b.bad && b.ll >= ll-1e-12*scale {
-				st.theta, st.ll, st.grad, st.hess = next, b.ll, g2, H2
-			}
-			st.converged, st.reason = true, "converged"
-			return st
-		}
-		prevSmall = pd && dec <= 1e-6*scale
-		if it >= maxIter {
-			st.reason = "iteration limit reached"
-			return st
-		}
-		step, accepted := 1.0, false
-		for h := 0; h < 60; h++ {
-			next := addScaled(th, d, step)
-			b := pp.evaluate(r.h(next), 0, false)
-			if !b.bad && !math.IsNaN(b.ll) && (b.ll > ll || (dec < 1e-6*scale && b.ll >= ll-1e-12*scale)) {
-				th, accepted = next, true
-				break
-			}
-			step /= 2
-		}
-		if !accepted {
-			st.reason = "no step raises the log-likelihood"
-			if pd && dec <= 1e-8*scale {
-				st.converged, st.reason = true, "converged (log-likelihood flat to working precision)"
-			}
-			return st
-		}
-		a, g, H = eval2(th)
-		if a.bad {
-			st.reason = "the log-likelihood could not be evaluated"
-			return st
-		}
-	}
+		return out
+	})
 }
 
 // reasonFlat: Newton stopped at a stationary point where the information

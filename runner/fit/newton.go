@@ -19,43 +19,76 @@ type newtonState struct {
 	repaired  int // iterations where the information was not positive definite
 }
 
-// newton maximizes the log-likelihood from theta0 with Newton-Raphson (or
-// Fisher scoring), step halving and repair of an indefinite information.
+// evalOut is one evaluation of a log-likelihood: its value and, when asked
+// for, score and second derivatives (order 1 and 2).
+type evalOut struct {
+	ll    float64
+	bad   bool // an observed category has a non-positive probability
+	order int
+	g, H  []float64
+}
+
+// evalFunc evaluates a log-likelihood at theta to the given order.
+type evalFunc func(theta []float64, order int) evalOut
+
+// newton maximizes the log-likelihood of the problem from theta0 with
+// Newton-Raphson (or Fisher scoring).
 func (p *problem) newton(theta0 []float64, maxIter int, scoring bool) newtonState {
+	return newtonLoop(theta0, maxIter, p.evaluator(scoring))
+}
+
+// evaluator wraps the problem's row sums as an evalFunc.
+func (p *problem) evaluator(scoring bool) evalFunc {
+	return func(th []float64, order int) evalOut {
+		a := p.evaluate(th, order, scoring)
+		out := evalOut{ll: a.ll, bad: a.bad || math.IsNaN(a.ll) || math.IsInf(a.ll, 0), order: order}
+		if out.bad {
+			return out
+		}
+		if order >= 1 {
+			out.g = p.gradient(th, a)
+		}
+		if order >= 2 {
+			out.H = p.hessian(th, a, !scoring)
+		}
+		return out
+	}
+}
+
+// newtonLoop is the Newton engine: step halving when the log-likelihood
+// falls or an observed category's probability becomes non-positive, repair
+// of an indefinite information, convergence on a positive definite
+// information and a small Newton decrement, then one last full step.
+func newtonLoop(theta0 []float64, maxIter int, ev evalFunc) newtonState {
 	theta := append([]float64(nil), theta0...)
 	st := newtonState{}
-	a := p.evaluate(theta, 2, scoring)
-	if a.bad || math.IsNaN(a.ll) || math.IsInf(a.ll, 0) {
+	a := ev(theta, 2)
+	if a.bad {
 		st.theta, st.ll, st.reason = theta, math.Inf(-1), "the starting values give a zero probability to an observed category"
 		return st
 	}
 	ll := a.ll
 	prevSmall := false
 	for it := 0; ; it++ {
-		g := p.gradient(theta, a)
-		H := p.hessian(theta, a, !scoring)
+		g, H := a.g, a.H
 		st.theta, st.ll, st.grad, st.hess, st.iters = theta, ll, g, H, it
 		d, dec, pd := newtonDirection(H, g)
 		if !pd {
 			st.repaired++
 		}
 		st.decrement = dec
-		tol := 1e-16 * math.Max(1, math.Abs(ll))
-		if pd && (dec <= tol || (prevSmall && dec <= 1e-10*math.Max(1, math.Abs(ll)))) {
+		scale := math.Max(1, math.Abs(ll))
+		if pd && (dec <= 1e-16*scale || (prevSmall && dec <= 1e-10*scale)) {
 			// Take the last (tiny) step: it squares the remaining error.
 			next := addScaled(theta, d, 1)
-			b := p.evaluate(next, 2, scoring)
-			if !b.bad && b.ll >= ll-1e-12*math.Max(1, math.Abs(ll)) {
-				theta, a, ll = next, b, b.ll
-				st.theta, st.ll = theta, ll
-				st.grad = p.gradient(theta, a)
-				st.hess = p.hessian(theta, a, !scoring)
+			if b := ev(next, 2); !b.bad && b.ll >= ll-1e-12*scale {
+				st.theta, st.ll, st.grad, st.hess = next, b.ll, b.g, b.H
 			}
 			st.converged = true
 			st.reason = "converged"
 			return st
 		}
-		prevSmall = pd && dec <= 1e-6*math.Max(1, math.Abs(ll))
+		prevSmall = pd && dec <= 1e-6*scale
 		if it >= maxIter {
 			st.reason = "iteration limit reached"
 			return st
@@ -65,17 +98,17 @@ func (p *problem) newton(theta0 []float64, maxIter int, scoring bool) newtonStat
 		// full step is evaluated with derivatives, since it is nearly always
 		// accepted and the next iteration needs them at that point.
 		step := 1.0
-		var next *acc
+		var next *evalOut
 		for h := 0; h < 60; h++ {
 			cand := addScaled(theta, d, step)
 			order := 0
 			if h == 0 {
 				order = 2
 			}
-			b := p.evaluate(cand, order, scoring)
-			if !b.bad && !math.IsNaN(b.ll) && (b.ll > ll || (dec < 1e-6*math.Max(1, math.Abs(ll)) && b.ll >= ll-1e-12*math.Max(1, math.Abs(ll)))) {
+			b := ev(cand, order)
+			if !b.bad && (b.ll > ll || (dec < 1e-6*scale && b.ll >= ll-1e-12*scale)) {
 				theta = cand
-				next = b
+				next = &b
 				break
 			}
 			step /= 2
@@ -83,16 +116,21 @@ func (p *problem) newton(theta0 []float64, maxIter int, scoring bool) newtonStat
 		if next == nil {
 			st.reason = "no step raises the log-likelihood"
 			// The point may still be an optimum to working precision.
-			if pd && dec <= 1e-8*math.Max(1, math.Abs(ll)) {
+			if pd && dec <= 1e-8*scale {
 				st.converged = true
 				st.reason = "converged (log-likelihood flat to working precision)"
 			}
 			return st
 		}
 		if next.order < 2 {
-			next = p.evaluate(theta, 2, scoring)
+			b := ev(theta, 2)
+			next = &b
 		}
-		a = next
+		if next.bad {
+			st.reason = "the log-likelihood could not be evaluated"
+			return st
+		}
+		a = *next
 		ll = a.ll
 	}
 }
