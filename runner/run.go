@@ -19,6 +19,7 @@ import (
 type Options struct {
 	Workers  int       // fits run at once (default: all cores)
 	Progress io.Writer // progress lines (nil: none)
+	Executor Executor  // runs the grid's fits elsewhere (nil: here)
 }
 
 // Run executes a validated plan: data, fits, tests, rules.
@@ -40,7 +41,7 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 		res.Notes = append(res.Notes, "The weights are probability (sampling) weights: the fits maximize a pseudo-likelihood, standard errors are sandwich estimates, likelihood-ratio, score and Brant tests are not valid and are replaced by Wald tests, and AIC/BIC are descriptive only.")
 	}
 	for _, oc := range p.Outcomes {
-		or, err := runOutcome(p, oc, opt)
+		or, err := runOutcome(p, oc, opt, res.DataHash)
 		if err != nil {
 			return nil, err
 		}
@@ -90,12 +91,13 @@ func covarianceOf(p *plan.Plan) string {
 	return p.Covariance
 }
 
-func runOutcome(p *plan.Plan, oc plan.Outcome, opt Options) (*OutcomeResult, error) {
-	ds, err := data.Load(p.Data.Path, data.Options{
+func runOutcome(p *plan.Plan, oc plan.Outcome, opt Options, dataHash string) (*OutcomeResult, error) {
+	dopt := data.Options{
 		Outcome: oc.Column, Levels: oc.Categories, Predictors: p.Predictors,
 		Weights: p.Data.Weights, Offset: p.Data.Offset, Cluster: p.Data.Cluster,
 		Refuse: p.Data.Missing == "refuse", MissingTokens: p.Data.MissingValues,
-	})
+	}
+	ds, err := data.Load(p.Data.Path, dopt)
 	if err != nil {
 		return nil, fmt.Errorf("%s (plan %s, outcome %q)", err, p.Path, oc.Column)
 	}
@@ -116,7 +118,14 @@ func runOutcome(p *plan.Plan, oc plan.Outcome, opt Options) (*OutcomeResult, err
 	// 2. The grid of candidate fits and the auxiliary fits the tests need.
 	jobs, notes := gridJobs(p, or.FreeSets, backward)
 	or.Notes = append(or.Notes, notes...)
-	runJobs(jobs, or.FitData, fopt, opt, oc.Column, sandwichFor(p, ds))
+	if opt.Executor != nil {
+		ctx := &ruleContext{outcome: oc.Column, dataFile: p.Data.File, dataHash: dataHash, dataOptions: dopt, fitOptions: fopt, sandwich: sandwichFor(p, ds)}
+		if err := remoteJobs(opt.Executor, jobs, ctx); err != nil {
+			return nil, err
+		}
+	} else {
+		runJobs(jobs, or.FitData, fopt, opt, oc.Column, sandwichFor(p, ds))
+	}
 	or.Fits = jobs
 
 	// 3. Tests of the parallel-lines assumption and nested LR tests.
