@@ -1,0 +1,230 @@
+package fit
+
+import (
+	"fmt"
+	"math"
+	"strings"
+)
+
+// groupLabel names constraint group g in messages.
+func groupLabel(ly *layout, g int) string {
+	switch {
+	case ly.gnames[g] != "":
+		return fmt.Sprintf("of group %q", ly.gnames[g])
+	case len(ly.groups) == 1:
+		return "of the constrained predictors"
+	}
+	return fmt.Sprintf("of group g%d", g+1)
+}
+
+// Thresholds of identification of phi: effects of a group on the linear
+// predictor (per standard deviation of each predictor) below phiZeroEffect
+// vanish; |phi| above phiHuge means the equation-1 slopes vanish relative
+// to the others; a standard error above phiHuge * max(1, |phi|) means the
+// data do not determine phi.
+const (
+	phiZeroEffect = 1e-6
+	phiHuge       = 1e6
+	phiLarge      = 100
+)
+
+// markIdentification checks, at the chosen maximum, whether each group's phi
+// is determined. When it is not, the status becomes StatusNotIdentified, the
+// log-likelihood is kept, phi is NaN, and the other standard errors come
+// from the information without that group's phi and gamma (holding its
+// slopes at their estimates). Large but determined phi get a note.
+func markIdentification(r *Result, d *Data, ly *layout, pr *problem, st *newtonState, sd []float64, opt Options) {
+	if math.IsInf(st.ll, -1) {
+		return
+	}
+	q := d.J - 1
+	P := len(ly.params)
+	var bad []int
+	var why []string
+	for g, ks := range ly.groups {
+		ph := ly.phi(st.theta, g)
+		gs, pm := 0.0, 0.0
+		for _, k := range ks {
+			gs = math.Max(gs, math.Abs(st.theta[ly.slope[k]])*sd[k])
+		}
+		maxRef := 0
+		for j, v := range ph {
+			if math.Abs(v) > pm {
+				pm, maxRef = math.Abs(v), j
+			}
+		}
+		seBig := false
+		if r.StdErrors != nil {
+			for j := 1; j < q; j++ {
+				i := ly.phiIndex[g][j]
+				if !(r.StdErrors[i] <= phiHuge*math.Max(1, math.Abs(st.theta[i]))) {
+					seBig = true
+				}
+			}
+		}
+		name := groupLabel(ly, g)
+		switch {
+		case gs*pm < phiZeroEffect:
+			bad = append(bad, g)
+			why = append(why, fmt.Sprintf("phi %s is not identified because gamma is near zero (largest |gamma_k| sd(x_k) = %.2g): these predictors have no effect, and every phi fits equally well", name, gs))
+		case pm > phiHuge:
+			bad = append(bad, g)
+			why = append(why, fmt.Sprintf("phi %s is not identified in the normalization phi_1 = 1: the slopes of equation 1 are near zero relative to equation %d (|phi_%d| = %.2g); read the effects matrix", name, maxRef+1, maxRef+1, pm))
+		case seBig:
+			bad = append(bad, g)
+			why = append(why, fmt.Sprintf("phi %s is not identified: its standard errors exceed %.0g times its size (gamma is too small to determine it, largest |gamma_k| sd(x_k) = %.2g)", name, phiHuge, gs))
+		case pm > phiLarge:
+			r.PhiNotes = append(r.PhiNotes, fmt.Sprintf("phi %s: the slopes of equation 1 are small relative to equation %d (|phi_%d| = %.3g); phi normalized by equation %d (PhiNormalized) is easier to read", name, maxRef+1, maxRef+1, pm, maxRef+1))
+		}
+	}
+	if len(bad) == 0 {
+		return
+	}
+	// Parameters kept: all but phi and gamma of the unidentified groups.
+	drop := make([]bool, P)
+	for _, g := range bad {
+		for j := 1; j < q; j++ {
+			drop[ly.phiIndex[g][j]] = true
+		}
+		for _, k := range ly.groups[g] {
+			drop[ly.slope[k]] = true
+		}
+	}
+	var keep []int
+	for i := 0; i < P; i++ {
+		if !drop[i] {
+			keep = append(keep, i)
+		}
+	}
+	H := st.hess
+	if opt.Covariance == CovEIM {
+		a := pr.evaluate(st.theta, 2, true)
+		H = pr.hessian(st.theta, a, false)
+	}
+	nk := len(keep)
+	sub := make([]float64, nk*nk)
+	gk := make([]float64, nk)
+	for a, i := range keep {
+		gk[a] = st.grad[i]
+		for b, j := range keep {
+			sub[a*nk+b] = -H[i*P+j]
+		}
+	}
+	var cov []float64
+	if nk > 0 {
+		cond, _, pd := scaledCondition(sub, nk)
+		if !pd || cond > conditionLimit {
+			// Something else is not determined either (e.g. separation):
+			// keep the engine's verdict and add the phi diagnosis.
+			r.Message = strings.Join(why, "; ") + ". " + r.Message
+			return
+		}
+		c, err := invertSym(sub, nk)
+		if err != nil {
+			r.Message = strings.Join(why, "; ") + ". " + r.Message
+			return
+		}
+		// The identified part must be at its maximum.
+		if dec := dot(gk, symMulVec(c, gk)); dec > 1e-8*math.Max(1, math.Abs(st.ll)) {
+			r.Message = strings.Join(why, "; ") + fmt.Sprintf(" (and the other parameters are not at a maximum: Newton decrement %.2g). ", dec) + r.Message
+			return
+		}
+		cov = c
+	}
+	r.Status = StatusNotIdentified
+	r.Separation = nil
+	r.Converged = true // the identified parameters are at their maximum
+	r.LogLik = st.ll
+	r.AIC = -2*r.LogLik + 2*float64(P)
+	r.BIC = -2*r.LogLik + math.Log(r.NObs)*float64(P)
+	r.CovType = CovOIM
+	if opt.Covariance == CovEIM {
+		r.CovType = CovEIM
+	}
+	r.Cov = make([]float64, P*P)
+	r.StdErrors = make([]float64, P)
+	for i := range r.Cov {
+		r.Cov[i] = math.NaN()
+	}
+	for i := range r.StdErrors {
+		r.StdErrors[i] = math.NaN()
+	}
+	for a, i := range keep {
+		for b, j := range keep {
+			r.Cov[i*P+j] = cov[a*nk+b]
+		}
+		r.StdErrors[i] = math.Sqrt(cov[a*nk+a])
+	}
+	r.Estimates = append([]float64(nil), r.Estimates...)
+	for _, g := range bad {
+		for j := 1; j < q; j++ {
+			r.Estimates[ly.phiIndex[g][j]] = math.NaN()
+			r.Phi[g][j] = math.NaN()
+		}
+	}
+	r.Message = strings.Join(why, "; ") + fmt.Sprintf("; the log-likelihood %.6f is the maximum; phi is reported as NaN and the other standard errors hold these slopes at their estimates", r.LogLik)
+	if r.NegativeRows > 0 {
+		r.Message += fmt.Sprintf("; %d of %d rows have a negative predicted category probability", r.NegativeRows, r.NRows)
+	}
+}
+
+// PhiNormalized rescales the common factor of constraint group g (0-based,
+// in the order of Result.PhiGroups) so that phi of equation ref (1-based)
+// is 1, with gamma multiplied by the old phi_ref; standard errors by the
+// delta method from Cov.
+func (r *Result) PhiNormalized(g, ref int) (*PhiNormalization, error) {
+	if g < 0 || g >= len(r.Phi) {
+		return nil, fmt.Errorf("%s has no constraint group %d", r.Name, g+1)
+	}
+	q := r.J - 1
+	if ref < 1 || ref > q {
+		return nil, fmt.Errorf("equation %d outside 1..%d", ref, q)
+	}
+	if r.Cov == nil || !(r.OK() || r.Status == StatusNotIdentified) {
+		return nil, fmt.Errorf("%s has no covariance matrix (%s)", r.Name, r.Status)
+	}
+	ly, err := newLayout(r.Model, r.J, r.Predictors)
+	if err != nil {
+		return nil, err
+	}
+	ph := r.Phi[g]
+	pr := ph[ref-1]
+	if math.IsNaN(pr) || math.Abs(pr) < 1e-12 {
+		return nil, fmt.Errorf("phi_%d is %g: it cannot be the normalization", ref, pr)
+	}
+	P := len(r.Estimates)
+	ks := ly.groups[g]
+	n := q + len(ks)
+	A := make([]float64, n*P) // Jacobian of (phi', gamma') in theta
+	est := make([]float64, n)
+	refIdx := ly.phiIndex[g][ref-1] // -1 when ref = 1
+	for j := 0; j < q; j++ {
+		est[j] = ph[j] / pr
+		if j > 0 && j != ref-1 {
+			A[j*P+ly.phiIndex[g][j]] = 1 / pr
+		}
+		if refIdx >= 0 && j != ref-1 {
+			A[j*P+refIdx] = -ph[j] / (pr * pr)
+		}
+	}
+	out := &PhiNormalization{Group: ly.gnames[g], Ref: ref}
+	for t, k := range ks {
+		s := ly.slope[k]
+		row := q + t
+		est[row] = pr * r.Estimates[s]
+		A[row*P+s] = pr
+		if refIdx >= 0 {
+			A[row*P+refIdx] = r.Estimates[s]
+		}
+		out.Predictors = append(out.Predictors, r.Predictors[k])
+	}
+	_, cov := linearMap(A, n, r.Estimates, r.Cov)
+	se := make([]float64, n)
+	for i := range se {
+		se[i] = math.Sqrt(math.Max(cov[i*n+i], 0))
+	}
+	se[ref-1] = 0
+	out.Phi, out.PhiSE = est[:q], se[:q]
+	out.Gamma, out.GammaSE = est[q:], se[q:]
+	return out, nil
+}
