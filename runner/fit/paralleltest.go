@@ -99,13 +99,18 @@ func WaldEqualSlopes(r *Result, predictors []string) Test {
 
 // waldStat is (R t)' (R V R')^-1 (R t).
 func waldStat(R [][]float64, theta, V []float64) (float64, error) {
-	n, P := len(R), len(theta)
-	if n == 0 {
-		return 0, fmt.Errorf("no restrictions")
-	}
-	rt := make([]float64, n)
+	rt := make([]float64, len(R))
 	for i, row := range R {
 		rt[i] = dot(row, theta)
+	}
+	return waldStatDiff(R, rt, V, len(theta))
+}
+
+// waldStatDiff is diff' (R V R')^-1 diff.
+func waldStatDiff(R [][]float64, rt, V []float64, P int) (float64, error) {
+	n := len(R)
+	if n == 0 {
+		return 0, fmt.Errorf("no restrictions")
 	}
 	M := mat.NewSymDense(n, nil)
 	for i := 0; i < n; i++ {

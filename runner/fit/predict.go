@@ -7,13 +7,21 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 )
 
-// Prediction holds category probabilities for new rows with delta-method
-// standard errors.
+// Prediction holds, for new rows, the category probabilities, cumulative
+// probabilities, expected category (scores 1..J), most likely category and
+// linear predictors, each with delta-method standard errors.
 type Prediction struct {
-	N, J     int
-	Prob     []float64 // N x J
-	SE       []float64 // N x J
-	Negative []bool    // a category probability is negative (cumulative partial/nonparallel)
+	N, J       int
+	Prob       []float64 // N x J: P(y = j)
+	SE         []float64 // N x J
+	Cum        []float64 // N x (J-1): P(y <= m)
+	CumSE      []float64
+	Expected   []float64 // N: sum_j j P(y = j), categories scored 1..J
+	ExpectedSE []float64
+	MostLikely []int     // N: 0-based category with the largest probability
+	Linear     []float64 // N x (J-1): L_m = cut_m - x'b_m - offset
+	LinearSE   []float64
+	Negative   []bool // a category probability is negative (cumulative partial/nonparallel)
 }
 
 // probsAt fills p (length J) with the category probabilities of one row x
@@ -79,6 +87,12 @@ func (pr *problem) rowLinear(theta []float64, x []float64, off float64) []float6
 // rowJacobian returns dP_j/dtheta (J x P) for one row, analytically:
 // dP/dL times dL/dtheta.
 func (pr *problem) rowJacobian(theta []float64, x []float64, off float64) []float64 {
+	out, _ := pr.rowJacobians(theta, x, off)
+	return out
+}
+
+// rowJacobians returns dP_j/dtheta (J x P) and dL_m/dtheta ((J-1) x P).
+func (pr *problem) rowJacobians(theta []float64, x []float64, off float64) ([]float64, []float64) {
 	q, P := pr.q, len(theta)
 	J := q + 1
 	L := pr.rowLinear(theta, x, off)
@@ -111,7 +125,7 @@ func (pr *problem) rowJacobian(theta []float64, x []float64, off float64) []floa
 			}
 		}
 	}
-	return out
+	return out, dL
 }
 
 // rowColumns returns the per-equation columns of one row.
@@ -163,7 +177,11 @@ func (r *Result) Predict(X []float64, offset []float64) (*Prediction, error) {
 		n = len(X) / K
 	}
 	J, P := r.J, len(r.Estimates)
-	out := &Prediction{N: n, J: J, Prob: make([]float64, n*J), SE: make([]float64, n*J), Negative: make([]bool, n)}
+	q := J - 1
+	out := &Prediction{N: n, J: J, Prob: make([]float64, n*J), SE: make([]float64, n*J),
+		Cum: make([]float64, n*q), CumSE: make([]float64, n*q), Expected: make([]float64, n), ExpectedSE: make([]float64, n),
+		MostLikely: make([]int, n), Linear: make([]float64, n*q), LinearSE: make([]float64, n*q), Negative: make([]bool, n)}
+	g := make([]float64, P)
 	for i := 0; i < n; i++ {
 		x := X[i*K : (i+1)*K]
 		off := 0.0
@@ -172,15 +190,42 @@ func (r *Result) Predict(X []float64, offset []float64) (*Prediction, error) {
 		}
 		p := out.Prob[i*J : (i+1)*J]
 		pr.probsAt(r.Estimates, x, off, p)
-		for _, v := range p {
+		G, dL := pr.rowJacobians(r.Estimates, x, off)
+		L := pr.rowLinear(r.Estimates, x, off)
+		best := 0
+		for j, v := range p {
 			if v < 0 {
 				out.Negative[i] = true
 			}
-		}
-		G := pr.rowJacobian(r.Estimates, x, off)
-		for j := 0; j < J; j++ {
+			if v > p[best] {
+				best = j
+			}
 			out.SE[i*J+j] = math.Sqrt(quadForm(G[j*P:(j+1)*P], r.Cov))
+			out.Expected[i] += float64(j+1) * v
 		}
+		out.MostLikely[i] = best
+		// cumulative probabilities and the expected category
+		for a := range g {
+			g[a] = 0
+		}
+		cum := 0.0
+		for m := 0; m < q; m++ {
+			cum += p[m]
+			out.Cum[i*q+m] = cum
+			for a := 0; a < P; a++ {
+				g[a] += G[m*P+a]
+			}
+			out.CumSE[i*q+m] = math.Sqrt(quadForm(g, r.Cov))
+			out.Linear[i*q+m] = L[m]
+			out.LinearSE[i*q+m] = math.Sqrt(quadForm(dL[m*P:(m+1)*P], r.Cov))
+		}
+		for a := range g {
+			g[a] = 0
+			for j := 0; j < J; j++ {
+				g[a] += float64(j+1) * G[j*P+a]
+			}
+		}
+		out.ExpectedSE[i] = math.Sqrt(quadForm(g, r.Cov))
 	}
 	return out, nil
 }
@@ -220,6 +265,27 @@ type MarginalEffect struct {
 // probabilities; for derivative effects it is differentiated numerically)
 // and intervals at the given level.
 func (r *Result) AverageMarginalEffects(d *Data, level float64) ([]MarginalEffect, error) {
+	binary := make([]bool, len(d.Predictors))
+	for k := range binary {
+		binary[k] = isBinary(d, k)
+	}
+	return r.marginalEffects(d, binary, level)
+}
+
+// MarginalEffectsAt returns the marginal effects at one point x (for
+// example the means of the predictors, or values a plan gives): the
+// derivative dP(y=j)/dx_k, or for the predictors flagged in binary the
+// change from x_k = 0 to x_k = 1 with the others held at x.
+func (r *Result) MarginalEffectsAt(x []float64, binary []bool, level float64) ([]MarginalEffect, error) {
+	K := len(r.Predictors)
+	if len(x) != K || len(binary) != K {
+		return nil, fmt.Errorf("need %d values and %d flags", K, K)
+	}
+	one := &Data{J: r.J, Predictors: r.Predictors, Y: []int{0}, X: append([]float64(nil), x...)}
+	return r.marginalEffects(one, binary, level)
+}
+
+func (r *Result) marginalEffects(d *Data, binaryOf []bool, level float64) ([]MarginalEffect, error) {
 	pr, err := r.problem()
 	if err != nil {
 		return nil, err
@@ -235,7 +301,7 @@ func (r *Result) AverageMarginalEffects(d *Data, level float64) ([]MarginalEffec
 	z := distuv.UnitNormal.Quantile(0.5 + level/2)
 	var out []MarginalEffect
 	for k := 0; k < K; k++ {
-		binary := isBinary(d, k)
+		binary := binaryOf[k]
 		eff := func(theta []float64) ([]float64, []float64) {
 			ame := make([]float64, J)
 			jac := make([]float64, J*P)

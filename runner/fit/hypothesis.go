@@ -1,0 +1,169 @@
+package fit
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+	"unicode"
+)
+
+// Hypothesis is a set of linear restrictions R theta = c on a fit's
+// parameters, written as text.
+type Hypothesis struct {
+	Text string
+	R    [][]float64
+	C    []float64
+}
+
+// ParseHypothesis reads restrictions such as
+//
+//	yr89[1] = yr89[2]
+//	yr89[1] = yr89[2] = yr89[3]        (a chain: two restrictions)
+//	2*male[1] - male[3] = 0.5; white = 0
+//
+// over the parameter names of a fit. Terms are an optional number (with an
+// optional '*') times a parameter name, or a number alone.
+func ParseHypothesis(text string, names []string) (*Hypothesis, error) {
+	h := &Hypothesis{Text: text}
+	index := map[string]int{}
+	for i, n := range names {
+		index[n] = i
+	}
+	for _, part := range strings.Split(text, ";") {
+		part = strings.TrimSpace(part)
+		if part == "" {
+			continue
+		}
+		sides := strings.Split(part, "=")
+		if len(sides) < 2 {
+			return nil, fmt.Errorf("hypothesis %q: %q has no '='", text, part)
+		}
+		var exprs [][]float64
+		var consts []float64
+		for _, side := range sides {
+			row, c, err := parseLinear(side, index, len(names))
+			if err != nil {
+				return nil, fmt.Errorf("hypothesis %q: %v", text, err)
+			}
+			exprs = append(exprs, row)
+			consts = append(consts, c)
+		}
+		for i := 0; i+1 < len(exprs); i++ {
+			row := make([]float64, len(names))
+			nonzero := false
+			for j := range row {
+				row[j] = exprs[i][j] - exprs[i+1][j]
+				nonzero = nonzero || row[j] != 0
+			}
+			if !nonzero {
+				return nil, fmt.Errorf("hypothesis %q: %q restricts no parameter", text, part)
+			}
+			h.R = append(h.R, row)
+			h.C = append(h.C, consts[i+1]-consts[i])
+		}
+	}
+	if len(h.R) == 0 {
+		return nil, fmt.Errorf("hypothesis %q is empty", text)
+	}
+	return h, nil
+}
+
+// parseLinear reads "a*name + b - name2 + 3" into coefficients and a
+// constant.
+func parseLinear(s string, index map[string]int, P int) ([]float64, float64, error) {
+	row := make([]float64, P)
+	c := 0.0
+	s = strings.TrimSpace(s)
+	if s == "" {
+		return nil, 0, fmt.Errorf("an empty side")
+	}
+	i := 0
+	sign := 1.0
+	expectTerm := true
+	for i < len(s) {
+		ch := rune(s[i])
+		switch {
+		case unicode.IsSpace(ch):
+			i++
+		case ch == '+' || ch == '-':
+			if !expectTerm {
+				expectTerm = true
+				sign = 1
+			}
+			if ch == '-' {
+				sign = -sign
+			}
+			i++
+		default:
+			if !expectTerm {
+				return nil, 0, fmt.Errorf("expected + or - before %q", s[i:])
+			}
+			coef := 1.0
+			j := i
+			for j < len(s) && (unicode.IsDigit(rune(s[j])) || s[j] == '.' || s[j] == 'e' && j > i) {
+				j++
+			}
+			if j > i {
+				v, err := strconv.ParseFloat(s[i:j], 64)
+				if err != nil {
+					return nil, 0, fmt.Errorf("bad number %q", s[i:j])
+				}
+				coef = v
+				i = j
+				for i < len(s) && unicode.IsSpace(rune(s[i])) {
+					i++
+				}
+				if i < len(s) && s[i] == '*' {
+					i++
+					for i < len(s) && unicode.IsSpace(rune(s[i])) {
+						i++
+					}
+				} else if i >= len(s) || s[i] == '+' || s[i] == '-' {
+					c += sign * coef
+					expectTerm, sign = false, 1
+					continue
+				}
+			}
+			j = i
+			for j < len(s) && !unicode.IsSpace(rune(s[j])) && s[j] != '+' && s[j] != '-' && s[j] != '*' {
+				j++
+			}
+			name := s[i:j]
+			k, ok := index[name]
+			if !ok {
+				return nil, 0, fmt.Errorf("%q is not a parameter of this model (parameters: %s)", name, strings.Join(sortedNames(index), ", "))
+			}
+			row[k] += sign * coef
+			i = j
+			expectTerm, sign = false, 1
+		}
+	}
+	if expectTerm {
+		return nil, 0, fmt.Errorf("a side ends with an operator")
+	}
+	return row, c, nil
+}
+
+func sortedNames(index map[string]int) []string {
+	out := make([]string, len(index))
+	for n, i := range index {
+		out[i] = n
+	}
+	return out
+}
+
+// WaldLinear tests R theta = c in fit r with its covariance.
+func WaldLinear(r *Result, h *Hypothesis) Test {
+	if !r.OK() || r.Cov == nil {
+		return failedTest("wald", "%s has no usable estimates", r.Name)
+	}
+	diff := make([]float64, len(h.R))
+	for i, row := range h.R {
+		diff[i] = dot(row, r.Estimates) - h.C[i]
+	}
+	x, err := waldStatDiff(h.R, diff, r.Cov, len(r.Estimates))
+	if err != nil {
+		return failedTest("wald", "%v", err)
+	}
+	return chi2Test("wald", x, len(h.R))
+}
