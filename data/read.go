@@ -82,13 +82,7 @@ func (r *reader) read(in io.Reader) (*Dataset, error) {
 	if err != nil {
 		return nil, &Error{File: r.file, Msg: err.Error()}
 	}
-	br := bufio.NewReader(in)
-	if b, err := br.Peek(len(utf8BOM)); err == nil && bytes.Equal(b, utf8BOM) {
-		br.Discard(len(utf8BOM))
-	}
-	r.cr = csv.NewReader(br)
-	r.cr.FieldsPerRecord = 0 // the header sets the width
-	r.cr.TrimLeadingSpace = true
+	r.start(in)
 	if err := r.header(cols); err != nil {
 		return nil, err
 	}
@@ -97,27 +91,9 @@ func (r *reader) read(in io.Reader) (*Dataset, error) {
 
 // header reads the header line and finds the used columns in it.
 func (r *reader) header(cols []usedCol) error {
-	hdr, err := r.cr.Read()
-	if err == io.EOF {
-		return &Error{File: r.file, Msg: "file is empty (a header line naming the columns is needed)"}
-	}
+	names, where, err := r.names()
 	if err != nil {
-		return r.csvErr(err, hdr)
-	}
-	line, _ := r.cr.FieldPos(0)
-	r.width = len(hdr)
-	names := make([]string, len(hdr))
-	where := make(map[string]int, len(hdr))
-	for i, h := range hdr {
-		n := strings.TrimSpace(h)
-		if n == "" {
-			return r.fail(line, "", "header: column %d has no name", i+1)
-		}
-		if j, dup := where[n]; dup {
-			return r.fail(line, "", "header: column name %s appears twice (columns %d and %d)", quoteCell(n), j+1, i+1)
-		}
-		where[n] = i
-		names[i] = n
+		return err
 	}
 	for i := range cols {
 		j, ok := where[cols[i].name]
@@ -129,4 +105,66 @@ func (r *reader) header(cols []usedCol) error {
 	}
 	r.cols = cols
 	return nil
+}
+
+// names reads the header line: the column names, trimmed, and where each
+// one is. Every column needs a distinct, non-empty name.
+func (r *reader) names() ([]string, map[string]int, error) {
+	hdr, err := r.cr.Read()
+	if err == io.EOF {
+		return nil, nil, &Error{File: r.file, Msg: "file is empty (a header line naming the columns is needed)"}
+	}
+	if err != nil {
+		return nil, nil, r.csvErr(err, hdr)
+	}
+	line, _ := r.cr.FieldPos(0)
+	r.width = len(hdr)
+	names := make([]string, len(hdr))
+	where := make(map[string]int, len(hdr))
+	for i, h := range hdr {
+		n := strings.TrimSpace(h)
+		if n == "" {
+			return nil, nil, r.fail(line, "", "header: column %d has no name", i+1)
+		}
+		if j, dup := where[n]; dup {
+			return nil, nil, r.fail(line, "", "header: column name %s appears twice (columns %d and %d)", quoteCell(n), j+1, i+1)
+		}
+		where[n] = i
+		names[i] = n
+	}
+	return names, where, nil
+}
+
+// Header reads only the header line of the CSV file at path and returns
+// the column names as Load sees them (spaces around names removed). It
+// fails, with an *Error, where Load would fail on the header.
+func Header(path string) ([]string, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, &Error{File: path, Msg: "cannot open file: " + osReason(err), Err: err}
+	}
+	defer f.Close()
+	return ReadHeader(f, path)
+}
+
+// ReadHeader is Header for a reader; name is used in messages.
+func ReadHeader(in io.Reader, name string) ([]string, error) {
+	if name == "" {
+		name = "<input>"
+	}
+	r := &reader{file: name}
+	r.start(in)
+	names, _, err := r.names()
+	return names, err
+}
+
+// start sets up the CSV reader, skipping a UTF-8 byte order mark.
+func (r *reader) start(in io.Reader) {
+	br := bufio.NewReader(in)
+	if b, err := br.Peek(len(utf8BOM)); err == nil && bytes.Equal(b, utf8BOM) {
+		br.Discard(len(utf8BOM))
+	}
+	r.cr = csv.NewReader(br)
+	r.cr.FieldsPerRecord = 0 // the header sets the width
+	r.cr.TrimLeadingSpace = true
 }

@@ -116,7 +116,11 @@ func (r *reader) rows() (*Dataset, error) {
 		d.RowsDropped += zeroWeight
 	}
 	if d.N == 0 {
-		return nil, r.fail(0, "", "all %d data rows were dropped for missing values (%s)", d.RowsRead, dropList(d.Dropped))
+		why := "missing values"
+		if zeroWeight > 0 {
+			why = "missing values or zero weight"
+		}
+		return nil, r.fail(0, "", "all %d data rows were dropped for %s (%s)", d.RowsRead, why, dropList(d.Dropped))
 	}
 	if d.X == nil {
 		d.X = []float64{}

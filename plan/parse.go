@@ -15,18 +15,26 @@ import (
 	"gopkg.in/yaml.v3"
 )
 
-// Load reads the plan file at path, checks it and applies defaults.
+// Load reads the plan file at path, checks it and applies defaults. Unlike
+// Parse it also opens the data file and checks that every column the plan
+// names is in its header, so that a misspelt column is reported at its
+// line in the plan.
 func Load(path string) (*Plan, error) {
 	src, err := os.ReadFile(path)
 	if err != nil {
 		return nil, fmt.Errorf("cannot read plan: %w", err)
 	}
-	return Parse(src, path)
+	return parse(src, path, true)
 }
 
 // Parse checks the plan in src, read from path, and applies defaults. On
-// failure the error is an Errors value listing every problem found.
+// failure the error is an Errors value listing every problem found. Parse
+// does not look at the data file.
 func Parse(src []byte, path string) (*Plan, error) {
+	return parse(src, path, false)
+}
+
+func parse(src []byte, path string, withData bool) (*Plan, error) {
 	d := newDecoder(path)
 	root, perr := readYAML(src, path)
 	if perr != nil {
@@ -37,6 +45,9 @@ func Parse(src []byte, path string) (*Plan, error) {
 	d.decodePlan(root, p)
 	d.applyDefaults(p)
 	d.check(p)
+	if withData {
+		d.checkDataColumns(p)
+	}
 	if len(d.errs) > 0 {
 		sortErrors(d.errs)
 		return nil, d.errs

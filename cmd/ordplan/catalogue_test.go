@@ -1,0 +1,491 @@
+package main
+
+// The catalogue of bad inputs (docs/bad-inputs.md), item by item, through
+// the command line: each bad plan, file or data set gets a non-zero exit
+// code and a one-line message naming the problem, or, where the design
+// says so (rows dropped and counted, a fit's status), the answer the
+// document gives. No item may make the program panic. Every data set is
+// written here, from fixed seeds.
+
+import (
+	"encoding/json"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"regexp"
+	"slices"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+// badInput is one catalogue item.
+type badInput struct {
+	id, name string
+	args     []string // the command line; a plan given as plan is written to <id>.yaml and appended
+	plan     string
+	code     int
+	want     []string // substrings of stderr (exit code not 0) or stdout (0); the directory is removed first
+	// known, when set, recognizes the output of a known problem, and
+	// says what it is; the item is then skipped rather than failed.
+	known func(out, errs string, code int) string
+	// check makes further checks on the output.
+	check func(t *testing.T, dir, out, errs string)
+}
+
+// The plan every plan item varies.
+const goodPlan = `version: 1
+data:
+  file: d.csv
+outcomes:
+  - column: y
+predictors: [a, b]
+models:
+  approaches: [cumulative, stage]
+  levels: [parallel, nonparallel]
+tests: {parallel_lines: [lr]}
+rules:
+  - reject_unconverged: true
+  - choose: {by: aic}
+`
+
+// edit makes replacements (old, new, old, new, ...) in goodPlan.
+func edit(pairs ...string) string {
+	s := goodPlan
+	for i := 0; i+1 < len(pairs); i += 2 {
+		if !strings.Contains(s, pairs[i]) {
+			panic("catalogue: " + pairs[i] + " is not in the plan")
+		}
+		s = strings.Replace(s, pairs[i], pairs[i+1], 1)
+	}
+	return s
+}
+
+// catalogueData writes the data files the items use.
+func catalogueData(t *testing.T, dir string) {
+	t.Helper()
+	rng := rand.New(rand.NewPCG(20261202, 7))
+	var base, sep, quasi, quasi0, weights strings.Builder
+	base.WriteString("y,a,b,c,d,big,tiny\n")
+	weights.WriteString("y,a,b,w0,wneg,wmiss\n")
+	for i := 0; i < 120; i++ {
+		// a with four decimals, so that "e8" and "e-8" rescale it exactly.
+		a := float64(rng.IntN(40000)-20000) / 1e4
+		b := rng.IntN(2)
+		u := rng.Float64()
+		z := 1.3*a + 0.8*float64(b) + math.Log(u/(1-u))
+		y := 1
+		if z > -0.4 {
+			y = 2
+		}
+		if z > 1 {
+			y = 3
+		}
+		as := strconv.FormatFloat(a, 'f', 4, 64)
+		fmt.Fprintf(&base, "%d,%s,%d,5,%s,%se8,%se-8\n", y, as, b, strconv.FormatFloat(2*a-float64(b), 'f', 4, 64), as, as)
+		w0, wneg, wmiss := "1", "2", "1"
+		switch i {
+		case 5:
+			w0 = "0"
+		case 9:
+			wneg = "-1"
+		case 11:
+			wmiss = ""
+		}
+		fmt.Fprintf(&weights, "%d,%s,%d,%s,%s,%s\n", y, as, b, w0, wneg, wmiss)
+	}
+	// Complete separation: x orders the outcome perfectly.
+	sep.WriteString("y,x,z\n")
+	for i := 0; i < 45; i++ {
+		x := -3 + 6*float64(i)/44
+		y := 1
+		if x >= -1 {
+			y = 2
+		}
+		if x >= 1 {
+			y = 3
+		}
+		fmt.Fprintf(&sep, "%d,%.4f,%.4f\n", y, x, rng.NormFloat64())
+	}
+	// Quasi-complete separation: category 1 occurs only at g = 1 (and,
+	// in the second file, with g coded the other way, only at g = 0).
+	quasi.WriteString("y,g,z\n")
+	quasi0.WriteString("y,g,z\n")
+	for i := 0; i < 60; i++ {
+		g := i % 2
+		y := 2 + rng.IntN(2)
+		if g == 1 {
+			y = 1 + rng.IntN(3)
+		}
+		z := rng.NormFloat64()
+		fmt.Fprintf(&quasi, "%d,%d,%.4f\n", y, g, z)
+		fmt.Fprintf(&quasi0, "%d,%d,%.4f\n", y, 1-g, z)
+	}
+	files := map[string]string{
+		"d.csv":        base.String(),
+		"w.csv":        weights.String(),
+		"sep.csv":      sep.String(),
+		"quasi1.csv":   quasi.String(),
+		"quasi0.csv":   quasi0.String(),
+		"empty.csv":    "",
+		"header.csv":   "y,a,b\n",
+		"ragged.csv":   "y,a,b\n1,0.5,1\n2,0.7\n3,0.1,0\n",
+		"text.csv":     "y,a,b\n1,0.5,1\n2,abc,0\n3,0.1,0\n",
+		"nan.csv":      "y,a,b\n1,0.5,1\n2,nan,0\n3,0.1,0\n",
+		"nantoken.csv": "y,a,b\n1,0.5,1\n2,NaN,0\n3,0.1,0\n1,0.2,1\n3,0.8,0\n",
+		"inf.csv":      "y,a,b\n1,0.5,1\n2,0.7,1\n3,-Inf,0\n",
+		"overflow.csv": "y,a,b\n1,0.5,1\n2,1e999,1\n3,0.1,0\n",
+		"onecat.csv":   "y,a,b\n2,0.5,1\n2,0.7,0\n2,0.1,1\n",
+		"labels.csv":   "y,a,b\nlow,0.5,1\nmedium,0.7,0\nhigh,0.1,1\n",
+		"three.csv":    "y,a,b\n1,0.5,1\n2,0.7,0\n3,0.1,1\n",
+		"allzero.csv":  "y,a,b,w\n1,0.5,1,0\n2,0.7,0,0\n3,0.1,1,0\n",
+		"huge.csv":     "y,a,b\n1,0.5,1\n2,0.7,0\n3,0.1,1\n1,1e300,0\n2,0.3,1\n3,0.9,0\n1,0.2,1\n2,0.4,0\n3,0.6,1\n",
+		// A fit that stops at the iteration limit today (adjacent,
+		// cloglog): the outcome is perfectly ordered by a combination of
+		// the predictors, and the log-likelihood creeps towards 0.
+		"slow.csv": `y,a,b,c
+1,0.27420849643696865,-4.550262400970486,0.6407933003975004
+2,-0.3714336902567512,-2.94894793923339,-59.02890134441452
+3,-3.3143900995013698,-1.3351652928495996,3.4121527654174146
+3,-0.49955945887182907,0.42229117050240683,-0.04044370164902711
+3,-2.0884438904675795,0.9671695442361998,87.89035132353152
+1,3.792561929980095,-0.7079638439035342,1.2969622548420787
+3,-3.1033819704570127,2.3298654733596345,0.29909206393926724
+2,4.952115184919945,1.0804790120940924,0.8332519231845916
+`,
+	}
+	for name, s := range files {
+		if err := os.WriteFile(filepath.Join(dir, name), []byte(s), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+}
+
+func fitArgs(file string, extra ...string) []string {
+	return append([]string{"fit", "--data", file, "--outcome", "y"}, extra...)
+}
+
+// fitJSON is what the catalogue reads of `ordplan fit --json`.
+type fitJSON struct {
+	Status    string               `json:"status"`
+	Message   string               `json:"message"`
+	LogLik    *float64             `json:"loglik"`
+	NObs      float64              `json:"nobs"`
+	Estimates map[string]float64   `json:"estimates"`
+	StdErrors map[string]float64   `json:"std_errors"`
+	Effects   map[string][]float64 `json:"effects"`
+}
+
+func readFitJSON(t *testing.T, out string) fitJSON {
+	t.Helper()
+	var f fitJSON
+	if err := json.Unmarshal([]byte(out), &f); err != nil {
+		t.Fatalf("not a JSON fit: %v\n%s", err, out)
+	}
+	return f
+}
+
+// scaled checks that a predictor written in other units ("e8" or "e-8"
+// after each value of a) fits to full accuracy: the log-likelihood of the
+// fit on a within 1e-8 relative, the slopes and their standard errors
+// divided by the factor within 1e-6 relative, everything else unchanged.
+func scaled(col string, factor float64, extra ...string) func(t *testing.T, dir, out, errs string) {
+	return func(t *testing.T, dir, out, errs string) {
+		got := readFitJSON(t, out)
+		bout, berrs, code := runCLI(fitArgs(filepath.Join(dir, "d.csv"), append([]string{"--predictors", "a,b", "--json"}, extra...)...)...)
+		if code != 0 {
+			t.Fatalf("fit on a: exit %d: %s", code, berrs)
+		}
+		base := readFitJSON(t, bout)
+		if got.LogLik == nil || math.Abs(*got.LogLik-*base.LogLik) > 1e-8*math.Abs(*base.LogLik) {
+			t.Errorf("log-likelihood %v, on a %v", got.LogLik, *base.LogLik)
+		}
+		for name, v := range base.Estimates {
+			se := base.StdErrors[name]
+			gname := name
+			if name == "a" || strings.HasPrefix(name, "a[") {
+				gname = col + name[1:]
+				v, se = v/factor, se/factor
+			}
+			g, ok := got.Estimates[gname]
+			if !ok || math.Abs(g-v) > 1e-6*math.Abs(v) || math.Abs(got.StdErrors[gname]-se) > 1e-6*se {
+				t.Errorf("%s = %v (se %v), want %v (se %v)", gname, g, got.StdErrors[gname], v, se)
+			}
+		}
+	}
+}
+
+// scaleProblem recognizes the known problem of predictors in large or
+// small units.
+func scaleProblem(out, errs string, code int) string {
+	if code == 1 && strings.Contains(out, "not_converged") && strings.Contains(out, "iteration limit reached") {
+		return "the fit stops at the iteration limit although the same data in other units converge in a few " +
+			"iterations (runner/fit/newton.go: the Newton step is solved on the unscaled information, and gonum " +
+			"refuses a Cholesky solve whose condition exceeds 1e16); see TestRobustnessRescaledPredictor"
+	}
+	return ""
+}
+
+// separationMissed recognizes a separated data set reported as an
+// ordinary fit.
+func separationMissed(out, errs string, code int) string {
+	if code == 0 && strings.Contains(out, "ok: converged") {
+		return "the fit is reported as converged, with a finite log-likelihood and enormous standard errors, " +
+			"instead of as having no finite maximum (runner/fit/finish.go: the test for separation looks only at " +
+			"the condition of the information scaled to unit diagonal); see TestRobustnessSeparationIsFound"
+	}
+	return ""
+}
+
+// catalogue lists the items of docs/bad-inputs.md; dir holds the files.
+func catalogue(dir string) []badInput {
+	d := func(name string) string { return filepath.Join(dir, name) }
+	return []badInput{
+		// Plans.
+		{id: "P1", name: "unknown key", args: []string{"check"}, plan: edit("predictors:", "predictorz: [a]\npredictors:"), code: 1,
+			want: []string{`P1.yaml:6:1: predictorz: unknown key "predictorz" (allowed: version, title, seed, data, outcomes, predictors, models, tests, rules, covariance, report)`}},
+		{id: "P2", name: "unknown nested key", args: []string{"check"}, plan: edit("  file: d.csv\n", "  file: d.csv\n  colour: red\n"), code: 1,
+			want: []string{`P2.yaml:4:3: data.colour: unknown key "colour" (allowed: file, missing, missing_values, weights, weight_kind, offset, cluster)`}},
+		{id: "P3", name: "wrong type: a number for a list", args: []string{"check"}, plan: edit("predictors: [a, b]", "predictors: 3"), code: 1,
+			want: []string{`P3.yaml:6:13: predictors: want a list, got number 3`}},
+		{id: "P4", name: "wrong type: text for a number", args: []string{"check"}, plan: edit("{by: aic}", "{by: aic, margin: wide}"), code: 1,
+			want: []string{`P4.yaml:13:31: rules[1].choose.margin: want a number, got string "wide"`}},
+		{id: "P5", name: "wrong type: text for true or false", args: []string{"check"}, plan: goodPlan + "report: {timestamp: yes}\n", code: 1,
+			want: []string{`P5.yaml:14:21: report.timestamp: want true or false, got string "yes"`}},
+		{id: "P6", name: "missing required key", args: []string{"check"}, plan: edit("outcomes:\n  - column: y\n", ""), code: 1,
+			want: []string{`P6.yaml:1:1: outcomes: required key is missing`}},
+		{id: "P7", name: "missing required nested key", args: []string{"check"}, plan: edit("  file: d.csv\n", "  missing: drop\n"), code: 1,
+			want: []string{`P7.yaml:3:3: data.file: required key is missing`}},
+		{id: "P8", name: "unknown approach", args: []string{"check"}, plan: edit("[cumulative, stage]", "[cumulative, sideways]"), code: 1,
+			want: []string{`P8.yaml:8:28: models.approaches[1]: unknown approach "sideways" (want cumulative, stage or adjacent)`}},
+		{id: "P9", name: "unknown link", args: []string{"check"}, plan: edit("  levels:", "  links: [logit, tanh]\n  levels:"), code: 1,
+			want: []string{`P9.yaml:9:18: models.links[1]: unknown link "tanh" (want logit, probit, cloglog, loglog or cauchit)`}},
+		{id: "P10", name: "rule that applies to no model", args: []string{"check"},
+			plan: edit("[cumulative, stage]", "[stage]", "reject_unconverged", "reject_negative_probabilities"), code: 1,
+			want: []string{`P10.yaml:12:36: rules[0].reject_negative_probabilities: applies only to cumulative fits, and models.approaches does not include cumulative`}},
+		{id: "P11", name: "test rule with nothing to compare", args: []string{"check"},
+			plan: edit("[parallel, nonparallel]", "[parallel]", "reject_unconverged: true", "reject_if_test_rejects: {test: lr}"), code: 1,
+			want: []string{`P11.yaml:12:29: rules[0].reject_if_test_rejects: compares neighbouring levels, but models.levels has only one (parallel)`}},
+		{id: "P12", name: "partial set names no predictor", args: []string{"check"},
+			plan: edit("[parallel, nonparallel]", "[parallel, partial]\n  partial: {free: [a, z]}"), code: 1,
+			want: []string{`P12.yaml:10:23: models.partial.free[1]: "z" is not a predictor (predictors: a, b)`}},
+		{id: "P13", name: "outcome column absent from the data", args: []string{"check"}, plan: edit("column: y", "column: score"), code: 1,
+			want: []string{`P13.yaml:5:13: outcomes[0].column: column "score" is not in the data file d.csv; its columns are "y", "a", "b", "c", "d", "big", "tiny"`}},
+		{id: "P14", name: "predictor column absent from the data", args: []string{"run"}, plan: edit("[a, b]", "[a, B]"), code: 1,
+			want: []string{`P14.yaml:6:17: predictors[1]: column "B" is not in the data file d.csv; did you mean "b"?`}},
+		{id: "P15", name: "weights column absent from the data", args: []string{"check"}, plan: edit("  file: d.csv\n", "  file: d.csv\n  weights: wt\n"), code: 1,
+			want: []string{`P15.yaml:4:12: data.weights: column "wt" is not in the data file d.csv`}},
+		{id: "P16", name: "data file absent", args: []string{"check"}, plan: edit("file: d.csv", "file: none.csv"), code: 1,
+			want: []string{`P16.yaml:3:9: data.file: cannot open the data file "none.csv" (looked for `, `none.csv): no such file or directory`}},
+		{id: "P17", name: "not YAML", args: []string{"check"}, plan: edit("[a, b]", "[a, b"), code: 1,
+			want: []string{`P17.yaml:`, `not valid YAML`}},
+		{id: "P18", name: "empty plan", args: []string{"check"}, plan: "# nothing yet\n", code: 1,
+			want: []string{`P18.yaml: plan file is empty`}},
+		{id: "P19", name: "several problems", args: []string{"check"},
+			plan: edit("column: y", "column: score") + "covariance: sandwich\n", code: 1,
+			want: []string{"P19.yaml:5:13: outcomes[0].column: column \"score\"", "\n", "P19.yaml:14:13: covariance: unknown covariance \"sandwich\""},
+			check: func(t *testing.T, dir, out, errs string) {
+				if n := strings.Count(strings.TrimSpace(errs), "\n"); n != 1 {
+					t.Errorf("want one line per problem, got %d lines", n+1)
+				}
+			}},
+
+		// Data files.
+		{id: "D1", name: "empty file", args: fitArgs(d("empty.csv"), "--predictors", "a,b"), code: 1,
+			want: []string{`ordplan: empty.csv: file is empty (a header line naming the columns is needed)`}},
+		{id: "D2", name: "header only", args: fitArgs(d("header.csv"), "--predictors", "a,b"), code: 1,
+			want: []string{`header.csv: no data rows after the header`}},
+		{id: "D3", name: "ragged row", args: fitArgs(d("ragged.csv"), "--predictors", "a,b"), code: 1,
+			want: []string{`ragged.csv:3: row has 2 fields but the header has 3`}},
+		{id: "D4", name: "non-numeric predictor value", args: fitArgs(d("text.csv"), "--predictors", "a,b"), code: 1,
+			want: []string{`text.csv:3: column "a": value "abc" is not a number`}},
+		{id: "D5", name: "NaN written as a value", args: fitArgs(d("nan.csv"), "--predictors", "a,b"), code: 1,
+			want: []string{`nan.csv:3: column "a": value "nan" is NaN, not a number (leave the cell empty to mark a missing value)`}},
+		{id: "D11", name: "NaN as a missing-value marker", args: fitArgs(d("nantoken.csv"), "--predictors", "a,b"), code: 0,
+			want: []string{"5 rows read, 4 used; 1 of 5 rows dropped for missing values or zero weight (a: 1)"}},
+		{id: "D6", name: "infinite value", args: fitArgs(d("inf.csv"), "--predictors", "a,b"), code: 1,
+			want: []string{`inf.csv:4: column "a": value "-Inf" is infinite`}},
+		{id: "D7", name: "number too large for a float", args: fitArgs(d("overflow.csv"), "--predictors", "a,b"), code: 1,
+			want: []string{`overflow.csv:3: column "a": value "1e999" is infinite (too large for a number)`}},
+		{id: "D8", name: "outcome with one category", args: fitArgs(d("onecat.csv"), "--predictors", "a,b"), code: 1,
+			want: []string{`onecat.csv: column "y": only one category ("2") among the 3 kept rows; at least two are needed`}},
+		{id: "D9", name: "declared category never observed", args: []string{"run"},
+			plan: edit("column: y", "column: y\n    categories: [\"1\", \"2\", \"3\", \"4\"]"), code: 1,
+			want: []string{`D9.yaml: outcomes: y: category "4" is declared but never observed in the 120 rows used; remove it from categories or merge it with a neighbour`}},
+		{id: "D10", name: "value that is not a declared category", args: fitArgs(d("labels.csv"), "--levels", "low,high", "--predictors", "a,b"), code: 1,
+			want: []string{`labels.csv:3: column "y": value "medium" is not one of the declared levels: "low", "high"`}},
+
+		// Data sets that cannot be fitted as asked.
+		{id: "M1", name: "constant predictor", args: fitArgs(d("d.csv"), "--predictors", "a,c"), code: 1,
+			want: []string{`predictor "c" is constant (every row has 5): it cannot be estimated alongside the cutpoints; remove it`}},
+		{id: "M2", name: "perfectly collinear predictors", args: fitArgs(d("d.csv"), "--predictors", "a,b,d"), code: 1,
+			want: []string{`predictor "d" is perfectly collinear with "a", "b" (and the constant): remove one of them`}},
+		{id: "M3", name: "constant predictor in a plan run", args: []string{"run"}, plan: edit("[a, b]", "[a, c]"), code: 1,
+			want: []string{`"c" is constant`},
+			known: func(out, errs string, code int) string {
+				if code == 0 && strings.Contains(out, "no model chosen") {
+					return "`ordplan run` exits 0 with \"y: no model chosen\" when every model of the grid is refused for the same " +
+						"input error; only report.md says why (runner/run.go runs the grid without checking the predictors " +
+						"once; cmd/ordplan/plan.go treats \"no model chosen\" as success)"
+				}
+				return ""
+			}},
+		{id: "M4", name: "complete separation", args: fitArgs(d("sep.csv"), "--predictors", "x,z"), code: 1,
+			want: []string{"no finite maximum likelihood estimate", "predictors involved: x", "category boundaries: "}, known: separationMissed},
+		{id: "M5", name: "quasi-complete separation", args: fitArgs(d("quasi1.csv"), "--predictors", "g,z", "--nonparallel", "g"), code: 1,
+			want: []string{"no finite maximum likelihood estimate", "predictors involved: g", "category boundaries: 1|2", `category "1" occurs only at g = 1`}},
+		{id: "M6", name: "quasi-complete separation, predictor coded the other way", args: fitArgs(d("quasi0.csv"), "--predictors", "g,z", "--nonparallel", "g"), code: 1,
+			want:  []string{"no finite maximum likelihood estimate", "predictors involved: g", "category boundaries: 1|2", `category "1" occurs only at g = 0`},
+			known: separationMissed},
+		{id: "M7", name: "more parameters than observations", args: fitArgs(d("three.csv"), "--predictors", "a,b"), code: 1,
+			want: []string{`three.csv: model cumulative/parallel/logit has 4 parameters but only 3 observations`}},
+		{id: "M8", name: "predictor in huge units (1e8)", args: fitArgs(d("d.csv"), "--predictors", "big,b", "--json"), code: 0,
+			want: []string{`"status": "ok"`}, known: scaleProblem, check: scaled("big", 1e8)},
+		{id: "M9", name: "predictor in tiny units (1e-8), nonparallel", args: fitArgs(d("d.csv"), "--predictors", "tiny,b", "--all-nonparallel", "--approach", "stage", "--json"), code: 0,
+			want: []string{`"status": "ok"`}, known: scaleProblem, check: scaled("tiny", 1e-8, "--all-nonparallel", "--approach", "stage")},
+		{id: "M10", name: "iteration limit", args: fitArgs(d("slow.csv"), "--predictors", "a,b,c", "--approach", "adjacent", "--link", "cloglog"), code: 1,
+			want: []string{"Status"},
+			check: func(t *testing.T, dir, out, errs string) {
+				// Today the engine stops at the iteration limit. The data
+				// are separated, so once that is detected the status will
+				// be no_finite_maximum instead; either way it is said.
+				stopped := strings.Contains(out, "not_converged") && strings.Contains(out, "iteration limit reached")
+				if !stopped && !strings.Contains(out, "no_finite_maximum") {
+					t.Fatalf("no status saying why the fit has no estimates:\n%s", out)
+				}
+				// In a plan run the status, and why the fit was rejected,
+				// are in decisions.json and in the report.
+				p := filepath.Join(dir, "M10run.yaml")
+				os.WriteFile(p, []byte("version: 1\ndata: {file: slow.csv}\noutcomes: [{column: y}]\npredictors: [a, b, c]\n"+
+					"models: {approaches: [adjacent], levels: [parallel], links: [cloglog]}\ntests: {parallel_lines: []}\n"+
+					"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\n"), 0o644)
+				outDir := filepath.Join(dir, "M10out")
+				if _, e, code := runCLI("run", p, "--out", outDir, "--quiet"); code != 0 {
+					t.Fatalf("run: exit %d: %s", code, e)
+				}
+				dec, _ := os.ReadFile(filepath.Join(outDir, "decisions.json"))
+				rep, _ := os.ReadFile(filepath.Join(outDir, "report.md"))
+				status, why := "no_finite_maximum", "no finite maximum"
+				if stopped {
+					status, why = "not_converged", "iteration limit reached"
+				}
+				for _, w := range []string{`"status": "` + status + `"`, why, "reject_unconverged (rule at line 8): status " + status} {
+					if !strings.Contains(string(dec), w) {
+						t.Errorf("decisions.json lacks %s", w)
+					}
+				}
+				if !strings.Contains(string(rep), status) || !strings.Contains(string(rep), why) {
+					t.Errorf("report.md does not show the status (%s) and its reason (%s)", status, why)
+				}
+			}},
+		{id: "M11", name: "predictor value whose square overflows", args: fitArgs(d("huge.csv"), "--predictors", "a,b"), code: 1,
+			want: []string{`"a"`, "too large"},
+			known: func(out, errs string, code int) string {
+				if code == 1 && strings.Contains(errs, `predictor "a" is constant`) {
+					return "a predictor with the value 1e300 is called constant (runner/fit/rank.go: the sum of squares " +
+						"overflows to +Inf and the test sd <= 1e-12*scale holds for Inf)"
+				}
+				return ""
+			}},
+
+		// Weights.
+		{id: "W1", name: "zero weights", args: fitArgs(d("w.csv"), "--predictors", "a,b", "--weights", "w0"), code: 0,
+			want: []string{"120 rows read, 119 used; 1 of 120 rows dropped for missing values or zero weight (w0 = 0: 1)", "Observations     119"}},
+		{id: "W2", name: "negative weight", args: fitArgs(d("w.csv"), "--predictors", "a,b", "--weights", "wneg"), code: 1,
+			want: []string{`w.csv:11: column "wneg": weight "-1" is negative (frequency weights must be zero or more)`}},
+		{id: "W3", name: "missing weight", args: fitArgs(d("w.csv"), "--predictors", "a,b", "--weights", "wmiss", "--json"), code: 0,
+			want: []string{`"nobs": 119`},
+			check: func(t *testing.T, dir, out, errs string) {
+				tab, _, _ := runCLI(fitArgs(filepath.Join(dir, "w.csv"), "--predictors", "a,b", "--weights", "wmiss")...)
+				if !strings.Contains(tab, "1 of 120 rows dropped for missing values or zero weight (wmiss: 1)") {
+					t.Errorf("the dropped row is not counted:\n%s", tab)
+				}
+			}},
+		{id: "W4", name: "every weight zero", args: []string{"run"},
+			plan: edit("file: d.csv", "file: allzero.csv\n  weights: w"), code: 1,
+			want: []string{`allzero.csv: all 3 data rows were dropped for missing values or zero weight (w = 0: 3)`}},
+	}
+}
+
+func TestBadInputCatalogue(t *testing.T) {
+	dir := t.TempDir()
+	catalogueData(t, dir)
+	for _, it := range catalogue(dir) {
+		t.Run(it.id+" "+it.name, func(t *testing.T) {
+			args := slices.Clone(it.args)
+			if it.plan != "" {
+				p := filepath.Join(dir, it.id+".yaml")
+				if err := os.WriteFile(p, []byte(it.plan), 0o644); err != nil {
+					t.Fatal(err)
+				}
+				args = append(args, p)
+				if args[0] == "run" {
+					args = append(args, "--out", filepath.Join(dir, it.id+"-out"), "--quiet")
+				}
+			}
+			out, errs, code := runCLI(args...)
+			for _, s := range []string{out, errs} {
+				if strings.Contains(s, "panic") || strings.Contains(s, "goroutine ") {
+					t.Fatalf("panic:\n%s", s)
+				}
+			}
+			if it.known != nil {
+				if why := it.known(out, errs, code); why != "" {
+					t.Skipf("known problem: %s", why)
+				}
+			}
+			if code != it.code {
+				t.Fatalf("exit %d, want %d\nstdout: %s\nstderr: %s", code, it.code, out, errs)
+			}
+			where := out
+			if it.code != 0 {
+				where = errs
+				if out != "" && !strings.HasPrefix(it.args[0], "fit") {
+					t.Errorf("stdout on failure: %s", out)
+				}
+				if where == "" {
+					where = out // `ordplan fit` prints a failed fit's status as its table
+				}
+			}
+			where = strings.ReplaceAll(where, dir+string(filepath.Separator), "")
+			for _, w := range it.want {
+				if !strings.Contains(where, w) {
+					t.Errorf("want %q in\n%s", w, where)
+				}
+			}
+			if it.code != 0 && it.id != "P19" && strings.Count(strings.TrimSpace(errs), "\n") > 0 {
+				t.Errorf("message spans lines: %q", errs)
+			}
+			if it.check != nil {
+				it.check(t, dir, out, errs)
+			}
+		})
+	}
+}
+
+// Every item of the catalogue is in docs/bad-inputs.md, and every item
+// there is tested here.
+func TestBadInputCatalogueIsDocumented(t *testing.T) {
+	doc, err := os.ReadFile(filepath.Join("..", "..", "docs", "bad-inputs.md"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	inDoc := map[string]bool{}
+	for _, m := range regexp.MustCompile(`(?m)^\| ([PDMW][0-9]+) \|`).FindAllStringSubmatch(string(doc), -1) {
+		inDoc[m[1]] = true
+	}
+	tested := map[string]bool{}
+	for _, it := range catalogue(t.TempDir()) {
+		tested[it.id] = true
+		if !inDoc[it.id] {
+			t.Errorf("%s (%s) is not in docs/bad-inputs.md", it.id, it.name)
+		}
+	}
+	for id := range inDoc {
+		if !tested[id] {
+			t.Errorf("docs/bad-inputs.md lists %s, which the catalogue does not test", id)
+		}
+	}
+}
