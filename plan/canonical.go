@@ -36,6 +36,7 @@ type canonPlan struct {
 	Rules      []map[string]any `json:"rules"`
 	Covariance string           `json:"covariance"`
 	Report     canonReport      `json:"report"`
+	Inference  canonInference   `json:"inference"`
 }
 
 type canonData struct {
@@ -132,8 +133,9 @@ func (p *Plan) canonical() canonPlan {
 			ConfidenceLevel: p.Report.ConfidenceLevel,
 			Timestamp:       p.Report.Timestamp,
 		},
-		Outcomes: []canonOutcome{},
-		Rules:    []map[string]any{},
+		Inference: p.Inference.canonical(),
+		Outcomes:  []canonOutcome{},
+		Rules:     []map[string]any{},
 	}
 	if p.Data.Weights != "" {
 		c.Data.WeightKind = optional(p.Data.WeightKind)

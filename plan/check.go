@@ -15,6 +15,9 @@ func (d *decoder) check(p *Plan) {
 	d.checkPartial(p)
 	d.checkGroups(p)
 	d.checkRules(p)
+	if d.predictorsKnown(p) {
+		d.checkInference(p)
+	}
 	if f := p.Report.FocusPredictor; d.given("report.focus_predictor") && d.predictorsKnown(p) && !slices.Contains(p.Predictors, f) {
 		d.errAt("report.focus_predictor", "%s is not a predictor (%s)", quote(f), known(p.Predictors))
 	}

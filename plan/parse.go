@@ -138,4 +138,5 @@ func (d *decoder) decodePlan(root *yaml.Node, p *Plan) {
 	}
 	m.word("covariance", "covariance", covarianceWords, &p.Covariance)
 	d.decodeReport(m.get("report"), &p.Report)
+	d.decodeInference(m.get("inference"), &p.Inference, p.Dir)
 }

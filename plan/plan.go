@@ -27,6 +27,7 @@ type Plan struct {
 	Rules      []Rule
 	Report     Report
 	Covariance string // "oim" (default), "eim", "robust", "cluster"
+	Inference  Inference
 }
 
 // Data says where the observations are and how to read them.

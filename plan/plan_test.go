@@ -463,3 +463,31 @@ func TestCanonical(t *testing.T) {
 		t.Errorf("canonical form depends on layout, or hash does not")
 	}
 }
+
+func TestInferenceSection(t *testing.T) {
+	base := "version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [a, b]\nmodels: {levels: [parallel]}\nrules:\n  - choose: {by: aic}\n"
+	p, err := Parse([]byte(base+"inference:\n  hypotheses: [\"a = b\", \"a = 0\"]\n  marginal_effects: [average, values]\n  at: {a: 2.5}\n  predict: new.csv\n"), "x/p.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	inf := p.Inference
+	if len(inf.Hypotheses) != 2 || inf.Hypotheses[0].Line != 9 || len(inf.At) != 1 || inf.At[0].Value != 2.5 || inf.PredictPath != "x/new.csv" {
+		t.Fatalf("%+v", inf)
+	}
+	if q, err := Parse(p.Canonical(), "x/p.yaml"); err != nil || string(q.Canonical()) != string(p.Canonical()) {
+		t.Fatalf("canonical round trip: %v", err)
+	}
+	for _, c := range []struct{ src, want string }{
+		{"inference:\n  at: {c: 1}\n  marginal_effects: [values]\n", `inference.at.c: "c" is not a predictor`},
+		{"inference:\n  marginal_effects: [values]\n", "need inference.at"},
+		{"inference:\n  at: {a: 1}\n", "used only with marginal_effects"},
+		{"inference:\n  marginal_effects: [median]\n", "median"},
+		{"inference:\n  at: {a: x}\n  marginal_effects: [values]\n", "want a number"},
+		{"inference:\n  hypothesis: [\"a = 0\"]\n", "unknown key"},
+	} {
+		_, err := Parse([]byte(base+c.src), "p.yaml")
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%q: %v", c.src, err)
+		}
+	}
+}

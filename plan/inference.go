@@ -1,0 +1,137 @@
+package plan
+
+import (
+	"path/filepath"
+	"slices"
+
+	"gopkg.in/yaml.v3"
+)
+
+// Inference is the optional `inference` section: what to report beyond the
+// model choice.
+type Inference struct {
+	// Hypotheses are linear restrictions on parameters, as text, each
+	// tested by a Wald test in every candidate model that has the named
+	// parameters, e.g. "pilot[1] = pilot[2] = pilot[3] = pilot[4]".
+	Hypotheses []Hypothesis
+	// MarginalEffects lists the kinds of marginal effects reported for the
+	// chosen model: average (over the rows), means (at the means of the
+	// predictors), values (at the values in At). Default [average].
+	MarginalEffects []string
+	// At gives predictor values for marginal effects "values"; predictors
+	// not listed are held at their means.
+	At []AtValue
+	// Predict names a CSV file of new rows (predictor columns) whose
+	// predictions by the chosen model are written to predictions.csv.
+	Predict     string
+	PredictPath string // resolved against the plan's folder
+}
+
+// Hypothesis is one hypothesis of the plan, with its line.
+type Hypothesis struct {
+	Text string
+	Line int
+}
+
+// AtValue is one predictor value for marginal effects at given values.
+type AtValue struct {
+	Predictor string
+	Value     float64
+}
+
+var (
+	inferenceKeys       = []string{"hypotheses", "marginal_effects", "at", "predict"}
+	marginalEffectWords = []string{"average", "means", "values"}
+)
+
+// decodeInference reads the inference section.
+func (d *decoder) decodeInference(n *yaml.Node, inf *Inference, dir string) {
+	inf.MarginalEffects = []string{"average"}
+	m := d.mapping(n, "inference", inferenceKeys)
+	if m == nil {
+		return
+	}
+	if v := m.get("hypotheses"); v != nil {
+		items, ok := d.list(v, m.at("hypotheses"))
+		if ok {
+			for i, it := range items {
+				if s, ok := d.text(it, itemPath(m.at("hypotheses"), i)); ok {
+					inf.Hypotheses = append(inf.Hypotheses, Hypothesis{Text: s, Line: deref(it).Line})
+				}
+			}
+		}
+	}
+	m.words("marginal_effects", "marginal effect", marginalEffectWords, true, &inf.MarginalEffects)
+	if v := m.get("at"); v != nil {
+		an := deref(v)
+		if an.Kind != yaml.MappingNode {
+			d.errorf(an, m.at("at"), "want a mapping of predictor: value, got %s", describe(an))
+		} else {
+			seen := map[string]bool{}
+			for i := 0; i+1 < len(an.Content); i += 2 {
+				k, val := deref(an.Content[i]), an.Content[i+1]
+				path := childPath(m.at("at"), k.Value)
+				if seen[k.Value] {
+					d.errorf(k, path, "predictor is given twice")
+					continue
+				}
+				seen[k.Value] = true
+				if x, ok := d.number(d.record(path, val), path); ok {
+					inf.At = append(inf.At, AtValue{Predictor: k.Value, Value: x})
+				}
+			}
+		}
+	}
+	if v := m.get("predict"); v != nil {
+		if s, ok := d.text(v, m.at("predict")); ok {
+			inf.Predict = s
+			inf.PredictPath = s
+			if !filepath.IsAbs(s) {
+				inf.PredictPath = filepath.Join(dir, s)
+			}
+		}
+	}
+}
+
+// checkInference checks the section against the predictors.
+func (d *decoder) checkInference(p *Plan) {
+	inf := &p.Inference
+	for _, a := range inf.At {
+		if !slices.Contains(p.Predictors, a.Predictor) {
+			d.errAt(childPath("inference.at", a.Predictor), "%s is not a predictor of the plan", quote(a.Predictor))
+		}
+	}
+	hasValues := slices.Contains(inf.MarginalEffects, "values")
+	if hasValues && len(inf.At) == 0 {
+		d.errAt("inference.marginal_effects", "marginal effects at values need inference.at (predictor: value, ...)")
+	}
+	if !hasValues && len(inf.At) > 0 {
+		d.errAt("inference.at", "inference.at is used only with marginal_effects: [values]; add values or remove at")
+	}
+}
+
+// canonInference is the canonical form of the section.
+type canonInference struct {
+	Hypotheses      []string           `json:"hypotheses"`
+	MarginalEffects []string           `json:"marginal_effects"`
+	At              map[string]float64 `json:"at,omitempty"`
+	Predict         *string            `json:"predict"`
+}
+
+func (inf *Inference) canonical() canonInference {
+	c := canonInference{Hypotheses: []string{}, MarginalEffects: inf.MarginalEffects}
+	for _, h := range inf.Hypotheses {
+		c.Hypotheses = append(c.Hypotheses, h.Text)
+	}
+	if len(inf.At) > 0 {
+		c.At = map[string]float64{}
+		for _, a := range inf.At {
+			c.At[a.Predictor] = a.Value
+		}
+	}
+	if inf.Predict != "" {
+		s := inf.Predict
+		c.Predict = &s
+	}
+	return c
+}
