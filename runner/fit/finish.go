@@ -225,8 +225,23 @@ func scaledCondition(A []float64, P int) (float64, []float64, bool) {
 	return maxV / vals[minI], vec, true
 }
 
+// invertSym inverts a positive definite matrix on the unit-diagonal scale,
+// so that parameters in very different units lose no accuracy.
 func invertSym(A []float64, P int) ([]float64, error) {
-	sym := mat.NewSymDense(P, append([]float64(nil), A...))
+	s := make([]float64, P)
+	for i := 0; i < P; i++ {
+		v := A[i*P+i]
+		if !(v > 0) || math.IsInf(v, 0) {
+			return nil, errSingular
+		}
+		s[i] = 1 / math.Sqrt(v)
+	}
+	sym := mat.NewSymDense(P, nil)
+	for i := 0; i < P; i++ {
+		for j := i; j < P; j++ {
+			sym.SetSym(i, j, A[i*P+j]*s[i]*s[j])
+		}
+	}
 	var ch mat.Cholesky
 	if !ch.Factorize(sym) {
 		return nil, errSingular
@@ -238,7 +253,7 @@ func invertSym(A []float64, P int) ([]float64, error) {
 	out := make([]float64, P*P)
 	for i := 0; i < P; i++ {
 		for j := 0; j < P; j++ {
-			out[i*P+j] = inv.At(i, j)
+			out[i*P+j] = inv.At(i, j) * s[i] * s[j]
 		}
 	}
 	return out, nil

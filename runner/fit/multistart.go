@@ -196,8 +196,11 @@ func ridgeRefs(res *Result, ly *layout, st *newtonState, sd []float64) []int {
 				pm, ref = math.Abs(v), j
 			}
 		}
-		irregular := !st.converged || !res.OK()
-		if gs*pm >= phiZeroEffect && (pm > phiHuge || (pm > phiLarge && irregular)) {
+		// A large phi is refitted with the largest equation as reference:
+		// normalizedFit keeps the standard result when that refit shows
+		// phi_1 is merely small, and reports non-identification only when
+		// the equation-1 slopes vanish.
+		if gs*pm >= phiZeroEffect && pm > phiLarge {
 			found = true
 		} else {
 			ref = 0
@@ -227,7 +230,7 @@ func (a *auxiliary) normalizedFit(d *Data, m Model, ly *layout, pr *problem, res
 	}
 	representable := true
 	for g, r := range refs {
-		if r > 0 && math.Abs(rm.phi(ast.theta, g)[0]) < 1/phiLarge/phiLarge {
+		if r > 0 && math.Abs(rm.phi(ast.theta, g)[0]) < 1.0/(phiLarge*phiLarge) {
 			representable = false
 		}
 	}

@@ -152,25 +152,12 @@ func newtonDirection(H, g []float64) ([]float64, float64, bool) {
 	if P == 0 {
 		return nil, 0, true
 	}
-	neg := mat.NewSymDense(P, nil)
-	for i := 0; i < P; i++ {
-		for j := i; j < P; j++ {
-			neg.SetSym(i, j, -H[i*P+j])
-		}
-	}
-	var ch mat.Cholesky
-	if ch.Factorize(neg) {
-		x := mat.NewVecDense(P, nil)
-		if err := ch.SolveVecTo(x, mat.NewVecDense(P, append([]float64(nil), g...))); err == nil {
-			d := x.RawVector().Data
-			return d, dot(g, d), true
-		}
-	}
-	// Scale to unit diagonal, then modify the spectrum.
+	// Work on the unit-diagonal scale: predictors in any units give the
+	// same conditioning.
 	s := make([]float64, P)
 	for i := 0; i < P; i++ {
-		v := math.Abs(neg.At(i, i))
-		if v == 0 || math.IsNaN(v) {
+		v := math.Abs(H[i*P+i])
+		if v == 0 || math.IsNaN(v) || math.IsInf(v, 0) {
 			v = 1
 		}
 		s[i] = 1 / math.Sqrt(v)
@@ -178,9 +165,25 @@ func newtonDirection(H, g []float64) ([]float64, float64, bool) {
 	sc := mat.NewSymDense(P, nil)
 	for i := 0; i < P; i++ {
 		for j := i; j < P; j++ {
-			sc.SetSym(i, j, neg.At(i, j)*s[i]*s[j])
+			sc.SetSym(i, j, -H[i*P+j]*s[i]*s[j])
 		}
 	}
+	var ch mat.Cholesky
+	if ch.Factorize(sc) {
+		gs := make([]float64, P)
+		for i := range gs {
+			gs[i] = g[i] * s[i]
+		}
+		x := mat.NewVecDense(P, nil)
+		if err := ch.SolveVecTo(x, mat.NewVecDense(P, gs)); err == nil {
+			d := make([]float64, P)
+			for i := range d {
+				d[i] = x.AtVec(i) * s[i]
+			}
+			return d, dot(g, d), true
+		}
+	}
+	// Not positive definite: modify the spectrum of the scaled matrix.
 	var es mat.EigenSym
 	if !es.Factorize(sc, true) {
 		d := make([]float64, P)
