@@ -55,6 +55,15 @@ func finish(d *Data, m Model, ly *layout, pr *problem, st newtonState, opt Optio
 	cond, minVec, pd := scaledCondition(info, P)
 	r.Condition = cond
 	singular := !pd || cond > conditionLimit || (cond > 1e5 && pr.rayRises(st.theta, st.ll, minVec, info))
+	if !singular && pr.suspectDivergence(st.theta, d) {
+		// Large coefficients: look for a direction along which the
+		// likelihood keeps rising (separation that leaves the scaled
+		// information well conditioned): the weakest direction, each
+		// parameter's axis, and the estimates themselves.
+		if v := pr.risingDirection(st.theta, st.ll, minVec, info); v != nil {
+			singular, minVec = true, v
+		}
+	}
 	switch {
 	case singular:
 		r.Status = StatusNoFiniteMaximum
@@ -177,6 +186,54 @@ func (p *problem) rayRises(theta []float64, ll float64, vec, info []float64) boo
 		}
 	}
 	return false
+}
+
+// suspectDivergence reports whether some coefficient is implausibly large:
+// a slope moving the linear predictor by more than 10 per standard
+// deviation of its predictor, or a cutpoint beyond 15 in absolute value.
+func (p *problem) suspectDivergence(theta []float64, d *Data) bool {
+	sd := predictorSD(d)
+	for i, pa := range p.ly.params {
+		v := math.Abs(theta[i])
+		switch pa.kind {
+		case pCut:
+			if v > 15 {
+				return true
+			}
+		case pParallel, pFree, pGamma:
+			if v*sd[pa.k] > 10 {
+				return true
+			}
+		}
+	}
+	return false
+}
+
+// risingDirection tries the weakest direction of the information, each
+// parameter's axis and the direction of the estimates; it returns the first
+// (in scaled coordinates) along which the log-likelihood does not fall.
+func (p *problem) risingDirection(theta []float64, ll float64, minVec, info []float64) []float64 {
+	P := len(theta)
+	if minVec != nil && p.rayRises(theta, ll, minVec, info) {
+		return minVec
+	}
+	for i := 0; i < P; i++ {
+		e := make([]float64, P)
+		e[i] = 1
+		if p.rayRises(theta, ll, e, info) {
+			return e
+		}
+	}
+	// The estimates scaled up: complete separation.
+	a := p.evaluate(addScaled(theta, theta, 1), 0, false)
+	if !a.bad && a.ll >= ll-1e-9*math.Max(1, math.Abs(ll)) {
+		v := make([]float64, P)
+		for i := range v {
+			v[i] = theta[i] * math.Sqrt(math.Max(info[i*P+i], 0))
+		}
+		return v
+	}
+	return nil
 }
 
 // scaledCondition returns the condition number of the matrix scaled to unit

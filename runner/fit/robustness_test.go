@@ -374,10 +374,8 @@ func TestRobustnessSeparationIsFound(t *testing.T) {
 		known    string // a known problem this case shows (skipped while it lasts)
 	}{
 		{"quasi-complete, category 1 only at g = 1", quasi, []Effect{Nonparallel, Parallel}, "g", "1|2", ""},
-		{"quasi-complete, category 1 only at g = 0", &flipped, []Effect{Nonparallel, Parallel}, "g", "1|2",
-			"the diverging slope g[1] is alone on its axis, so the information scaled to unit diagonal stays well conditioned and finish() never tries the ray test"},
-		{"complete", complete, []Effect{Parallel, Parallel}, "x", "",
-			"every fitted probability tends to 1 and the whole information vanishes together, so its scaled condition stays small; the fit ends ok with a log-likelihood of about 0 and standard errors near 1e6"},
+		{"quasi-complete, category 1 only at g = 0", &flipped, []Effect{Nonparallel, Parallel}, "g", "1|2", ""},
+		{"complete", complete, []Effect{Parallel, Parallel}, "x", "", ""},
 	}
 	for _, cs := range cases {
 		for _, c := range []Comparison{Cumulative, Stage, Adjacent} {
