@@ -221,7 +221,10 @@ func (k *kernel) adjacent(L []float64, c int, g, h []float64) (float64, bool) {
 			continue
 		}
 		lo, up := k.link.lower(L[m]), k.link.upper(L[m])
-		ps[m], dps[m], d2ps[m] = lo.v-up.v, lo.d1-up.d1, lo.d2-up.d2
+		// Far in a tail one of the logs overflows: keep psi finite (the
+		// probabilities are then exactly 0 on one side) so that sums of psi
+		// never meet Inf - Inf.
+		ps[m], dps[m], d2ps[m] = clampHuge(lo.v-up.v), clampHuge(lo.d1-up.d1), clampHuge(lo.d2-up.d2)
 	}
 	var sbuf [65]float64
 	var s []float64
@@ -287,12 +290,12 @@ func (k *kernel) adjacent(L []float64, c int, g, h []float64) (float64, bool) {
 			dpsi = -C[m]
 		}
 		if g != nil {
-			g[m] = dps[m] * dpsi
+			g[m] = mulZero(dps[m], dpsi)
 		}
 		if h != nil {
-			h[m*q+m] += d2ps[m] * dpsi
+			h[m*q+m] += mulZero(d2ps[m], dpsi)
 			for l := m; l < q; l++ {
-				v := -C[m] * U[l] * dps[m] * dps[l] // -(C_min - C_m C_l) = -C_m (1 - C_l) for m <= l
+				v := -mulZero(mulZero(C[m]*U[l], dps[m]), dps[l]) // -(C_min - C_m C_l) = -C_m (1 - C_l) for m <= l
 				h[m*q+l] += v
 				if l != m {
 					h[l*q+m] += v
@@ -301,6 +304,21 @@ func (k *kernel) adjacent(L []float64, c int, g, h []float64) (float64, bool) {
 		}
 	}
 	return lp, true
+}
+
+// clampHuge keeps x within +-1e300.
+func clampHuge(x float64) float64 {
+	return math.Max(-1e300, math.Min(1e300, x))
+}
+
+// mulZero is a*b with 0 times anything (even a huge value) equal to 0: a
+// derivative weighted by a probability that is exactly 0 contributes
+// nothing.
+func mulZero(a, b float64) float64 {
+	if a == 0 || b == 0 {
+		return 0
+	}
+	return a * b
 }
 
 // probs fills p (length J) with the category probabilities at L. For
