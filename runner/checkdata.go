@@ -5,6 +5,7 @@ import (
 
 	"ordplan/data"
 	"ordplan/plan"
+	"ordplan/runner/fit"
 )
 
 // CheckData checks a plan against its data file: the file reads, every
@@ -19,6 +20,9 @@ func CheckData(p *plan.Plan) error {
 		}
 		if len(ds.Unobserved) > 0 {
 			return fmt.Errorf("%s: outcomes: %s: category %q is declared but never observed in the %d rows used", p.Path, oc.Column, ds.Unobserved[0], ds.N)
+		}
+		if err := fit.CheckDesign(FitData(ds)); err != nil {
+			return fmt.Errorf("%s: outcome %q: %v", p.Data.File, oc.Column, err)
 		}
 	}
 	return supported(p)

@@ -218,9 +218,13 @@ func chooseModel(r plan.Rule, or *OutcomeResult, alive []*FitEntry, ro *RuleOutc
 	for _, f := range usable {
 		best = math.Min(best, crit(f))
 	}
+	// Criteria equal to rounding count as equal (the same model reached
+	// through two approaches, for example), so that row order cannot
+	// decide; then grid order decides.
+	tol := 1e-8 * math.Max(1, math.Abs(best))
 	var tied []*FitEntry
 	for _, f := range usable {
-		if crit(f) <= best+r.Margin {
+		if crit(f) <= best+r.Margin+tol {
 			tied = append(tied, f)
 		}
 	}
@@ -229,7 +233,7 @@ func chooseModel(r plan.Rule, or *OutcomeResult, alive []*FitEntry, ro *RuleOutc
 		if a.NParams != b.NParams {
 			return a.NParams < b.NParams
 		}
-		return crit(tied[i]) < crit(tied[j])
+		return crit(tied[i]) < crit(tied[j])-tol
 	})
 	chosen := tied[0]
 	by := upper(r.By)
@@ -243,7 +247,7 @@ func chooseModel(r plan.Rule, or *OutcomeResult, alive []*FitEntry, ro *RuleOutc
 			if len(tied) > 1 {
 				v.Reason += fmt.Sprintf("; %d models within the margin %g, this one has the fewest parameters", len(tied), r.Margin)
 			}
-		case c <= best+r.Margin:
+		case c <= best+r.Margin+tol:
 			v.Reason = fmt.Sprintf("within the margin (%s %s, %+.3f) but %d parameters, more than %d", by, numfmt.Fixed(c, 3), c-best, f.Result.NParams, chosen.Result.NParams)
 		default:
 			v.Reason = fmt.Sprintf("%s %s is %.3f above the smallest (margin %g)", by, numfmt.Fixed(c, 3), c-best, r.Margin)

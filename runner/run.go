@@ -105,6 +105,9 @@ func runOutcome(p *plan.Plan, oc plan.Outcome, opt Options, dataHash string) (*O
 		return nil, fmt.Errorf("%s: outcomes: %s: category %q is declared but never observed in the %d rows used; remove it from categories or merge it with a neighbour", p.Path, oc.Column, ds.Unobserved[0], ds.N)
 	}
 	or := &OutcomeResult{Outcome: oc, Data: ds, FitData: FitData(ds)}
+	if err := fit.CheckDesign(or.FitData); err != nil {
+		return nil, fmt.Errorf("%s: outcome %q: %v", p.Data.File, oc.Column, err)
+	}
 	fopt := fit.Options{Covariance: p.Covariance, Workers: 1}
 	if fopt.Covariance != "eim" {
 		fopt.Covariance = "oim"

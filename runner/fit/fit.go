@@ -279,6 +279,19 @@ func marginalCutpoints(d *Data, m Model) []float64 {
 	for i := range p {
 		p[i] /= tot
 	}
+	// With an offset, L = tau - offset at zero slopes: shift the cutpoints
+	// by the weighted mean offset.
+	shift := 0.0
+	if d.Offset != nil {
+		for i, o := range d.Offset {
+			w := 1.0
+			if d.Weights != nil {
+				w = d.Weights[i]
+			}
+			shift += w * o
+		}
+		shift /= tot
+	}
 	tau := make([]float64, J-1)
 	for j := 0; j < J-1; j++ {
 		var pr float64
@@ -303,7 +316,7 @@ func marginalCutpoints(d *Data, m Model) []float64 {
 			pr = p[j] / (p[j] + p[j+1])
 		}
 		pr = math.Min(math.Max(pr, 1e-6), 1-1e-6)
-		tau[j] = m.Link.Quantile(pr)
+		tau[j] = m.Link.Quantile(pr) + shift
 	}
 	return tau
 }

@@ -7,6 +7,16 @@ import (
 	"gonum.org/v1/gonum/mat"
 )
 
+// CheckDesign checks fit input before any model is fitted: categories,
+// weights, finite values, and predictors that are constant, collinear or
+// too large. Its errors are *InputError with a message for the user.
+func CheckDesign(d *Data) error {
+	if err := d.validate(); err != nil {
+		return err
+	}
+	return d.checkRank(Model{})
+}
+
 // checkRank refuses constant predictors and predictors that are exact linear
 // combinations of others (with the cutpoints playing the intercept), naming
 // them.
@@ -20,6 +30,13 @@ func (d *Data) checkRank(m Model) error {
 			return 1
 		}
 		return d.Weights[i]
+	}
+	for k := 0; k < K; k++ {
+		for i := 0; i < n; i++ {
+			if v := math.Abs(d.X[i*K+k]); v > 1e150 {
+				return inputErr("predictor %q has the value %g in row %d: too large to fit; rescale the predictor (for example to thousands or millions of units)", d.Predictors[k], d.X[i*K+k], i+1)
+			}
+		}
 	}
 	mean := make([]float64, K)
 	tot := 0.0
