@@ -262,3 +262,23 @@ func TestZeroWeightRowsDropped(t *testing.T) {
 		t.Fatalf("nobs %v", d.NObs())
 	}
 }
+
+func TestLoadRows(t *testing.T) {
+	dir := t.TempDir()
+	p := dir + "/new.csv"
+	os.WriteFile(p, []byte("id,b,a\n1,2,3\n2,,4\n3,5,6\n"), 0o644)
+	rs, err := LoadRows(p, []string{"a", "b"}, "", nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rs.N != 2 || rs.X[0] != 3 || rs.X[1] != 2 || len(rs.Skipped) != 1 || rs.Skipped[0] != 3 || rs.Lines[1] != 4 {
+		t.Fatalf("%+v", rs)
+	}
+	os.WriteFile(p, []byte("a,b\n1,x\n"), 0o644)
+	if _, err := LoadRows(p, []string{"a", "b"}, "", nil); err == nil || !strings.Contains(err.Error(), `new.csv:2: column "b"`) {
+		t.Fatalf("%v", err)
+	}
+	if _, err := LoadRows(p, []string{"a", "c"}, "", nil); err == nil || !strings.Contains(err.Error(), `column "c": column not found`) {
+		t.Fatalf("%v", err)
+	}
+}

@@ -1,32 +1,55 @@
 package render
 
 import (
+	"fmt"
+	"strings"
+
 	"ordplan/numfmt"
 	"ordplan/runner"
 )
 
-// writeMarginalEffects writes the chosen model's average marginal effects.
+// writeMarginalEffects writes the chosen model's marginal effects of each
+// kind the plan asks for (average, at the means, at given values).
 func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
-	res := or.Chosen.Result
 	level, _ := confidence(r)
-	d.h(3, "Average marginal effects")
-	ames, err := res.AverageMarginalEffects(or.FitData, level)
-	if err != nil {
-		d.p("Not computed: %s.", err)
-		return
-	}
-	d.p("How much the probability of each category changes with each predictor, averaged over the %d rows used%s with the other predictors as observed. For a 0/1 predictor (change \"0 to 1\") the effect is the difference between the probabilities with the predictor set to 1 and set to 0; for any other predictor (change \"per unit\") it is the derivative, the change per unit of the predictor. The effects of one predictor add up to zero over the categories. Standard errors by the delta method; intervals at %s.",
-		or.FitData.N(), weightedNote(or), pct(level))
-	var rows [][]string
-	for _, me := range ames {
-		change := "per unit"
-		if me.Discrete {
-			change = "0 to 1"
+	for _, set := range or.Marginal {
+		switch set.Kind {
+		case "average":
+			d.h(3, "Average marginal effects")
+			d.p("How much the probability of each category changes with each predictor, averaged over the %d rows used%s with the other predictors as observed. For a 0/1 predictor (change \"0 to 1\") the effect is the difference between the probabilities with the predictor set to 1 and set to 0; for any other predictor (change \"per unit\") it is the derivative, the change per unit of the predictor. The effects of one predictor add up to zero over the categories. Standard errors by the delta method; intervals at %s.",
+				or.FitData.N(), weightedNote(or), pct(level))
+		case "means":
+			d.h(3, "Marginal effects at the means")
+			d.p("The same effects at one point: every predictor at its mean (%s), a 0/1 predictor changed from 0 to 1 with the others at their means. Standard errors by the delta method; intervals at %s.", atList(or, set.At), pct(level))
+		case "values":
+			d.h(3, "Marginal effects at the plan's values")
+			d.p("The effects at the point %s (predictors the plan does not set are at their means; a predictor the plan sets is treated as continuous). Standard errors by the delta method; intervals at %s.", atList(or, set.At), pct(level))
 		}
-		rows = append(rows, []string{me.Predictor, change, me.Category, numfmt.Num(me.Effect), numfmt.Num(me.SE),
-			numfmt.Fixed(me.Z, 2), numfmt.PValue(me.P), numfmt.Num(me.Low), numfmt.Num(me.High)})
+		if set.Error != "" {
+			d.p("Not computed: %s.", set.Error)
+			continue
+		}
+		var rows [][]string
+		for _, me := range set.Effects {
+			change := "per unit"
+			if me.Discrete {
+				change = "0 to 1"
+			}
+			rows = append(rows, []string{me.Predictor, change, me.Category, numfmt.Num(me.Effect), numfmt.Num(me.SE),
+				numfmt.Fixed(me.Z, 2), numfmt.PValue(me.P), numfmt.Num(me.Low), numfmt.Num(me.High)})
+		}
+		d.table([]string{"Predictor", "Change", "Category", "Effect", "Std. error", "z", "p", pct(level) + " low", pct(level) + " high"}, rows)
 	}
-	d.table([]string{"Predictor", "Change", "Category", "Effect", "Std. error", "z", "p", pct(level) + " low", pct(level) + " high"}, rows)
+}
+
+func atList(or *runner.OutcomeResult, x []float64) string {
+	var parts []string
+	for k, p := range or.FitData.Predictors {
+		if k < len(x) {
+			parts = append(parts, fmt.Sprintf("%s = %s", p, numfmt.Num(x[k])))
+		}
+	}
+	return strings.Join(parts, ", ")
 }
 
 func weightedNote(or *runner.OutcomeResult) string {

@@ -21,12 +21,15 @@ func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	writeDecisionLog(d, or)
 	writeBoundaryEffects(d, r, or)
 	if or.Chosen == nil {
+		writeHypotheses(d, or)
 		d.p("No model was chosen, so the report shows no estimates, predicted probabilities or marginal effects for this outcome.")
 		return
 	}
 	writeChosen(d, r, or)
+	writeHypotheses(d, or)
 	writePredictions(d, r, or)
 	writeMarginalEffects(d, r, or)
+	writeNewRows(d, or)
 }
 
 func writeData(d *doc, or *runner.OutcomeResult) {

@@ -16,9 +16,15 @@ func Outputs(r *runner.Result, dec *runner.Decisions, changes []string) (map[str
 	if err != nil {
 		return nil, err
 	}
-	return map[string][]byte{
+	files := map[string][]byte{
 		"decisions.json": b,
 		"report.md":      d.markdown(),
 		"report.html":    page,
-	}, nil
+	}
+	for _, or := range r.Outcomes {
+		if or.NewRows != nil && or.NewRows.Pred != nil {
+			files[predictionsFile(or)] = predictionsCSV(or)
+		}
+	}
+	return files, nil
 }

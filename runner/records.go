@@ -56,6 +56,8 @@ type OutcomeDecisions struct {
 	Choice     string             `json:"choice"`
 	Notes      []string           `json:"notes"`
 	Final      map[string]Verdict `json:"final_verdicts"`
+	Hypotheses []HypothesisResult `json:"hypotheses,omitempty"`
+	Marginal   []MarginalSet      `json:"marginal_effects,omitempty"`
 }
 
 // FreeSetRecord is a partial set in JSON.
@@ -136,6 +138,8 @@ func BuildDecisions(r *Result) *Decisions {
 			id := or.Chosen.ID
 			od.Chosen = &id
 		}
+		od.Hypotheses = or.Hypotheses
+		od.Marginal = or.Marginal
 		d.Outcomes = append(d.Outcomes, od)
 	}
 	return d

@@ -140,6 +140,12 @@ func runOutcome(p *plan.Plan, oc plan.Outcome, opt Options, dataHash string) (*O
 
 	// 4. The decision rules, in order.
 	applyRules(p, or)
+
+	// 5. What the plan asks beyond the choice: hypotheses, marginal
+	// effects, predictions for new rows.
+	if err := runInference(p, or); err != nil {
+		return nil, err
+	}
 	return or, nil
 }
 

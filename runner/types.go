@@ -28,6 +28,10 @@ type OutcomeResult struct {
 	Chosen   *FitEntry
 	Choice   string   // why the chosen model was chosen, or why none was
 	Notes    []string // models not fitted and why
+
+	Hypotheses []HypothesisResult // the plan's hypotheses, per model
+	Marginal   []MarginalSet      // marginal effects of the chosen model
+	NewRows    *NewRows           // predictions for the plan's new rows
 }
 
 // FreeSet is the set of predictors allowed to vary in partial and

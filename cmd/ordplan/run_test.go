@@ -39,6 +39,8 @@ func TestRunExamplePlan(t *testing.T) {
 	src, _ := os.ReadFile(filepath.Join("..", "..", "plans", "data", "quietstreets.csv"))
 	lines := strings.SplitAfter(string(src), "\n")
 	os.WriteFile(filepath.Join(cdir, "data", "quietstreets.csv"), []byte(strings.Join(lines[:len(lines)-300], "")), 0o644)
+	nr, _ := os.ReadFile(filepath.Join("..", "..", "plans", "data", "newrows.csv"))
+	os.WriteFile(filepath.Join(cdir, "data", "newrows.csv"), nr, 0o644)
 	pl, _ := os.ReadFile(plan)
 	os.WriteFile(filepath.Join(cdir, "example.yaml"), pl, 0o644)
 	stdout, stderr, code := runCLI("run", filepath.Join(cdir, "example.yaml"), "--out", filepath.Join(dir, "c"), "--previous", a, "--quiet")

@@ -379,7 +379,7 @@ func (r *Result) marginalEffects(d *Data, binaryOf []bool, level float64) ([]Mar
 				me.Z = ame[j] / se
 				me.P = 2 * distuv.UnitNormal.Survival(math.Abs(me.Z))
 			} else {
-				me.P = math.NaN()
+				me.P = 1 // an effect fixed by the model (no sampling variation)
 			}
 			me.Low, me.High = ame[j]-z*se, ame[j]+z*se
 			out = append(out, me)

@@ -1,0 +1,106 @@
+package data
+
+import (
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"io"
+	"os"
+	"strings"
+)
+
+// Rows are new covariate rows to predict: predictor values (and offsets)
+// without an outcome.
+type Rows struct {
+	File       string
+	Predictors []string
+	X          []float64 // N x K
+	Offset     []float64 // nil when no offset column
+	N          int
+	Lines      []int // line of each kept row
+	RowsRead   int
+	Skipped    []int // lines skipped for a missing value
+}
+
+// LoadRows reads a CSV file of rows to predict: a header naming at least
+// the predictors (and the offset column when offset is not ""). Rows with a
+// missing value are skipped and their lines listed; bad values are errors
+// naming the line and column.
+func LoadRows(path string, predictors []string, offset string, missingTokens []string) (*Rows, error) {
+	raw, err := os.ReadFile(path)
+	if err != nil {
+		return nil, &Error{File: path, Msg: "cannot open file: " + osReason(err), Err: err}
+	}
+	raw = bytes.TrimPrefix(raw, utf8BOM)
+	opt := Options{MissingTokens: missingTokens}
+	missing := opt.missingSet()
+	cr := csv.NewReader(bytes.NewReader(raw))
+	head, err := cr.Read()
+	if err == io.EOF {
+		return nil, &Error{File: path, Msg: "the file is empty"}
+	}
+	if err != nil {
+		return nil, &Error{File: path, Line: 1, Msg: "cannot read the header: " + err.Error(), Err: err}
+	}
+	index := map[string]int{}
+	for i, h := range head {
+		index[strings.TrimSpace(h)] = i
+	}
+	cols := append([]string(nil), predictors...)
+	if offset != "" {
+		cols = append(cols, offset)
+	}
+	pos := make([]int, len(cols))
+	for j, c := range cols {
+		i, ok := index[c]
+		if !ok {
+			return nil, &Error{File: path, Column: c, Msg: "column not found in the header; available columns: " + quoteList(head)}
+		}
+		pos[j] = i
+	}
+	K := len(predictors)
+	rs := &Rows{File: path, Predictors: predictors}
+	for {
+		rec, err := cr.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			var pe *csv.ParseError
+			if errors.As(err, &pe) {
+				return nil, &Error{File: path, Line: pe.StartLine, Msg: "row has a different number of fields than the header, or bad quoting: " + pe.Err.Error(), Err: err}
+			}
+			return nil, &Error{File: path, Msg: err.Error(), Err: err}
+		}
+		rs.RowsRead++
+		line, _ := cr.FieldPos(0)
+		vals := make([]float64, len(cols))
+		skip := false
+		for j, c := range cols {
+			cell := strings.TrimSpace(rec[pos[j]])
+			if missing[cell] {
+				skip = true
+				break
+			}
+			v, msg := parseNumber(cell)
+			if msg != "" {
+				return nil, &Error{File: path, Line: line, Column: c, Msg: msg}
+			}
+			vals[j] = v
+		}
+		if skip {
+			rs.Skipped = append(rs.Skipped, line)
+			continue
+		}
+		rs.X = append(rs.X, vals[:K]...)
+		if offset != "" {
+			rs.Offset = append(rs.Offset, vals[K])
+		}
+		rs.Lines = append(rs.Lines, line)
+		rs.N++
+	}
+	if rs.RowsRead == 0 {
+		return nil, &Error{File: path, Msg: "no data rows after the header"}
+	}
+	return rs, nil
+}

@@ -1,0 +1,73 @@
+package runner
+
+import (
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"ordplan/plan"
+)
+
+// The plan's inference section on the General Social Survey extract (Long
+// 1997): the hypothesis of equal yr89 slopes in the nonparallel cumulative
+// logit is the reference per-variable Wald test (chi2(2) = 12.2606);
+// marginal effects at the means and at given values; predictions for new
+// rows.
+func TestRunInference(t *testing.T) {
+	dir := t.TempDir()
+	abs, _ := filepath.Abs(filepath.Join("..", "..", "shared", "reference", "gsswarm.csv"))
+	os.WriteFile(filepath.Join(dir, "new.csv"), []byte("yr89,male,white,age,ed,prst\n1,0,1,40,12,40\n0,1,1,,12,40\n0,1,0,60,16,60\n"), 0o644)
+	src := `version: 1
+title: inference
+data: {file: ` + abs + `}
+outcomes: [{column: warm}]
+predictors: [yr89, male, white, age, ed, prst]
+models: {approaches: [cumulative], levels: [parallel, nonparallel]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: aic}
+inference:
+  hypotheses: ["yr89[1] = yr89[2] = yr89[3]", "height = 0"]
+  marginal_effects: [average, means, values]
+  at: {age: 30}
+  predict: new.csv
+`
+	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644)
+	p, err := plan.Load(filepath.Join(dir, "p.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := runPlan(t, p, 0)
+	or := r.Outcomes[0]
+	var found bool
+	for _, h := range or.Hypotheses {
+		switch {
+		case strings.HasPrefix(h.Text, "yr89") && h.Model == "cumulative/nonparallel/logit":
+			found = true
+			if h.Test.DF != 2 || math.Abs(h.Test.Chi2-12.2606264804328) > 1e-4 {
+				t.Errorf("%+v", h.Test)
+			}
+		case strings.HasPrefix(h.Text, "height"):
+			if h.Test.OK || !strings.Contains(h.Test.Reason, "no fitted model has the parameters") {
+				t.Errorf("%+v", h)
+			}
+		}
+	}
+	if !found {
+		t.Fatalf("hypothesis not tested in the nonparallel model: %+v", or.Hypotheses)
+	}
+	if len(or.Marginal) != 3 || or.Marginal[2].At[3] != 30 || or.Marginal[1].At[3] == 30 {
+		t.Fatalf("marginal sets %+v", or.Marginal)
+	}
+	for _, set := range or.Marginal {
+		if set.Error != "" || len(set.Effects) != 6*4 {
+			t.Errorf("%s: %d effects, %s", set.Kind, len(set.Effects), set.Error)
+		}
+	}
+	nr := or.NewRows
+	if nr == nil || nr.Pred == nil || nr.Rows.N != 2 || len(nr.Rows.Skipped) != 1 || nr.Rows.Lines[1] != 4 {
+		t.Fatalf("new rows %+v", nr)
+	}
+}
