@@ -109,3 +109,22 @@ func BaselineTable(w io.Writer, r *fit.Result, b *fit.Baseline) {
 	}
 	tw.Flush()
 }
+
+// StereotypeTable writes the category-score form of a stereotype fit.
+func StereotypeTable(w io.Writer, r *fit.Result) error {
+	s, err := r.StereotypeScores()
+	if err != nil {
+		return err
+	}
+	fmt.Fprintf(w, "\nCategory-score form: %s\n", s.Normalization)
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintf(tw, "category\talpha\tstd. error\tscore\tstd. error\t\n")
+	for j, l := range s.Levels {
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t\n", l, numfmt.Num(s.Alpha[j]), numfmt.Num(s.AlphaSE[j]), numfmt.Num(s.Score[j]), numfmt.Num(s.ScoreSE[j]))
+	}
+	fmt.Fprintf(tw, "predictor\tbeta\tstd. error\t\t\t\n")
+	for k, p := range s.Predictors {
+		fmt.Fprintf(tw, "%s\t%s\t%s\t\t\t\n", p, numfmt.Num(s.Beta[k]), numfmt.Num(s.BetaSE[k]))
+	}
+	return tw.Flush()
+}
