@@ -371,48 +371,33 @@ func (r rankMap) newton(pp *problem, th0 []float64, maxIter int) newtonState {
 // is singular (a flat direction, such as phi when gamma = 0).
 const reasonFlat = "the log-likelihood is flat (singular information)"
 
-// chunkIters: a start that has not converged after this many Newton
-// iterations continues (in chunks, up to Options.MaxIter) only while the
-// quadratic model of its Newton step says it could still reach the best
-// log-likelihood found so far.
-const chunkIters = 25
-
 // runStart runs Newton-Raphson from theta; best is the best log-likelihood
 // found so far (-Inf: run to the iteration limit). A start at which an
 // observed category has probability zero is first moved towards anchor
 // (when not nil).
 func (p *problem) runStart(theta, anchor []float64, opt Options, best float64) newtonState {
-	chunk := min(chunkIters, opt.MaxIter)
-	st := p.newton(theta, chunk, opt.Scoring)
-	if math.IsInf(st.ll, -1) && anchor != nil {
-		theta = p.validToward(theta, anchor)
-		st = p.newton(theta, chunk, opt.Scoring)
-	}
-	used := st.iters
 	prev := math.NaN()
-	// The Newton engine stops short of its iteration budget only when it
-	// converged or could not raise the log-likelihood.
-	for !st.converged && st.iters >= chunk && used < opt.MaxIter {
-		if st.decrement <= 1e-10*math.Max(1, math.Abs(st.ll)) {
-			st.reason = reasonFlat
-			break
+	stop := func(it int, ll, dec float64, pd bool) string {
+		defer func() { prev = ll }()
+		if it >= 3 && !pd && dec <= 1e-10*math.Max(1, math.Abs(ll)) {
+			return reasonFlat
 		}
-		// Continue while the quadratic model, or the progress of the last
-		// chunk, says the best could still be reached.
-		if math.IsNaN(prev) {
-			prev = p.evaluate(theta, 0, false).ll
+		if it < 1 || math.IsInf(best, -1) || math.IsNaN(prev) {
+			return ""
 		}
-		gap := best - sameLL - st.ll
-		if 2*st.decrement < gap && st.ll-prev < gap {
-			st.reason = fmt.Sprintf("abandoned: it could not reach the best log-likelihood %.6f", best)
-			break
+		// Stop when neither the quadratic model of the next step nor the
+		// recent progress could bring this start to the best so far.
+		gap := best - sameLL - ll
+		if 2*dec < gap && 5*(ll-prev) < gap {
+			return fmt.Sprintf("abandoned: it could not reach the best log-likelihood %.6f", best)
 		}
-		prev = st.ll
-		chunk = min(chunkIters, opt.MaxIter-used)
-		st = p.newton(st.theta, chunk, opt.Scoring)
-		used += st.iters
+		return ""
 	}
-	st.iters = used
+	st := newtonLoopStop(theta, opt.MaxIter, p.evaluator(opt.Scoring), stop)
+	if math.IsInf(st.ll, -1) && anchor != nil {
+		prev = math.NaN()
+		st = newtonLoopStop(p.validToward(theta, anchor), opt.MaxIter, p.evaluator(opt.Scoring), stop)
+	}
 	return st
 }
 

@@ -60,6 +60,17 @@ func (p *problem) evaluator(scoring bool) evalFunc {
 // of an indefinite information, convergence on a positive definite
 // information and a small Newton decrement, then one last full step.
 func newtonLoop(theta0 []float64, maxIter int, ev evalFunc) newtonState {
+	return newtonLoopStop(theta0, maxIter, ev, nil)
+}
+
+// stopFunc may end a Newton run early: called once per iteration that has
+// not converged, with the iteration, log-likelihood, Newton decrement and
+// whether the information was positive definite; a non-empty answer stops
+// the run with that reason.
+type stopFunc func(it int, ll, dec float64, pd bool) string
+
+// newtonLoopStop is newtonLoop with an optional early stop.
+func newtonLoopStop(theta0 []float64, maxIter int, ev evalFunc, stop stopFunc) newtonState {
 	theta := append([]float64(nil), theta0...)
 	st := newtonState{}
 	a := ev(theta, 2)
@@ -89,6 +100,12 @@ func newtonLoop(theta0 []float64, maxIter int, ev evalFunc) newtonState {
 			return st
 		}
 		prevSmall = pd && dec <= 1e-6*scale
+		if stop != nil {
+			if why := stop(it, ll, dec, pd); why != "" {
+				st.reason = why
+				return st
+			}
+		}
 		if it >= maxIter {
 			st.reason = "iteration limit reached"
 			return st
