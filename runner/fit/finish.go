@@ -22,23 +22,7 @@ func finish(d *Data, m Model, ly *layout, pr *problem, st newtonState, opt Optio
 		ParamNames: ly.names(), Estimates: st.theta, Decrement: st.decrement,
 		LogLik: st.ll, SupLogLik: st.ll,
 	}
-	for _, g := range st.grad {
-		r.MaxAbsScore = math.Max(r.MaxAbsScore, math.Abs(g))
-	}
-	q := d.J - 1
-	r.Cutpoints = make([]float64, q)
-	for j := 0; j < q; j++ {
-		r.Cutpoints[j] = st.theta[ly.cut[j]]
-	}
-	B := ly.effects(st.theta, m.Effects)
-	r.Effects = make([][]float64, q)
-	for j := 0; j < q; j++ {
-		r.Effects[j] = B[j*ly.K : (j+1)*ly.K]
-	}
-	for g := range ly.groups {
-		r.Phi = append(r.Phi, ly.phi(st.theta, g))
-		r.PhiGroups = append(r.PhiGroups, ly.gnames[g])
-	}
+	ly.fillEstimates(r, m, st)
 	r.MinFittedProb, r.NegativeRows = pr.fittedCheck(st.theta)
 
 	if math.IsInf(st.ll, -1) {
@@ -109,6 +93,28 @@ func finish(d *Data, m Model, ly *layout, pr *problem, st newtonState, opt Optio
 	return r
 }
 
+// fillEstimates sets the score summary, cutpoints, effects matrix and
+// common factors of a result from the Newton state.
+func (ly *layout) fillEstimates(r *Result, m Model, st newtonState) {
+	for _, g := range st.grad {
+		r.MaxAbsScore = math.Max(r.MaxAbsScore, math.Abs(g))
+	}
+	q := ly.J - 1
+	r.Cutpoints = make([]float64, q)
+	for j := 0; j < q; j++ {
+		r.Cutpoints[j] = st.theta[ly.cut[j]]
+	}
+	B := ly.effects(st.theta, m.Effects)
+	r.Effects = make([][]float64, q)
+	for j := 0; j < q; j++ {
+		r.Effects[j] = B[j*ly.K : (j+1)*ly.K]
+	}
+	for g := range ly.groups {
+		r.Phi = append(r.Phi, ly.phi(st.theta, g))
+		r.PhiGroups = append(r.PhiGroups, ly.gnames[g])
+	}
+}
+
 // fittedCheck returns the smallest fitted probability of an observed
 // category and the number of rows with a negative category probability.
 func (p *problem) fittedCheck(theta []float64) (float64, int) {
@@ -140,14 +146,21 @@ func (p *problem) fittedCheck(theta []float64) (float64, int) {
 
 // linear fills L with the J-1 linear predictors of row i.
 func (p *problem) linear(c *coefs, i int, L []float64) {
-	d, q := p.d, p.q
-	xi := d.x[i*d.K : (i+1)*d.K]
-	e := 0.0
+	d := p.d
+	off := 0.0
+	if d.off != nil {
+		off = d.off[i]
+	}
+	p.linearRow(c, d.x[i*d.K:(i+1)*d.K], off, L)
+}
+
+// linearRow fills L with the J-1 linear predictors of a row of predictor
+// values xi with offset off.
+func (p *problem) linearRow(c *coefs, xi []float64, off float64, L []float64) {
+	q := p.q
+	e := off
 	for j, k := range p.parCols {
 		e += xi[k] * c.bp[j]
-	}
-	if d.off != nil {
-		e += d.off[i]
 	}
 	for m := 0; m < q; m++ {
 		L[m] = c.tau[m] - e

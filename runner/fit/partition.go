@@ -142,19 +142,7 @@ func FitFromSums(w Whole, m Model, sums func(theta []float64, order int) (*Sums,
 	r := &Result{Model: m, Name: m.Name(), Predictors: w.Predictors, Levels: cd.levelsOr(w.Levels), J: w.J,
 		Converged: st.converged, Iterations: st.iters, Reason: st.reason, NObs: nobs, NRows: w.Rows, NParams: P,
 		ParamNames: ly.names(), Estimates: st.theta, Decrement: st.decrement, LogLik: st.ll, SupLogLik: st.ll}
-	for _, g := range st.grad {
-		r.MaxAbsScore = math.Max(r.MaxAbsScore, math.Abs(g))
-	}
-	q := w.J - 1
-	r.Cutpoints = make([]float64, q)
-	for j := 0; j < q; j++ {
-		r.Cutpoints[j] = st.theta[ly.cut[j]]
-	}
-	B := ly.effects(st.theta, m.Effects)
-	r.Effects = make([][]float64, q)
-	for j := 0; j < q; j++ {
-		r.Effects[j] = B[j*ly.K : (j+1)*ly.K]
-	}
+	ly.fillEstimates(r, m, st)
 	if diag != nil {
 		if r.NegativeRows, r.MinFittedProb, err = diag(st.theta); err != nil {
 			return nil, err

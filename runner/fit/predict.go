@@ -27,17 +27,7 @@ type Prediction struct {
 // probsAt fills p (length J) with the category probabilities of one row x
 // (length K) with offset off, at parameters theta.
 func (pr *problem) probsAt(theta []float64, x []float64, off float64, p []float64) {
-	c := pr.coefs(theta)
-	d := &design{n: 1, K: len(x), x: x, y: []int{0}}
-	if off != 0 {
-		d.off = []float64{off}
-	}
-	save := pr.d
-	pr.d = d
-	L := make([]float64, pr.q)
-	pr.linear(c, 0, L)
-	pr.d = save
-	pr.ker.probs(L, p)
+	pr.ker.probs(pr.rowLinear(theta, x, off), p)
 }
 
 // dprobsDL fills D (J x (J-1)) with dP_j/dL_m at L.
@@ -71,16 +61,8 @@ func (k *kernel) dprobsDL(L []float64, D []float64) {
 
 // rowLinear returns the J-1 linear predictors of one row.
 func (pr *problem) rowLinear(theta []float64, x []float64, off float64) []float64 {
-	c := pr.coefs(theta)
-	d := &design{n: 1, K: len(x), x: x, y: []int{0}}
-	if off != 0 {
-		d.off = []float64{off}
-	}
-	save := pr.d
-	pr.d = d
 	L := make([]float64, pr.q)
-	pr.linear(c, 0, L)
-	pr.d = save
+	pr.linearRow(pr.coefs(theta), x, off, L)
 	return L
 }
 
