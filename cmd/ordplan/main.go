@@ -27,7 +27,8 @@ const (
 const usage = `ordplan: analysis plans for ordered outcomes
 
 usage:
-  ordplan run PLAN.yaml [--out DIR] [--previous DIR] [--workers N]
+  ordplan run PLAN.yaml [--out DIR] [--previous DIR] [--workers N] [--queue nats://HOST:PORT]
+  ordplan worker --queue nats://HOST:PORT [--cache DIR] [--jobs N]
   ordplan check PLAN.yaml
   ordplan fit --data FILE --outcome COL --predictors a,b,c [options]
   ordplan version
@@ -51,6 +52,8 @@ func run(args []string, stdout, stderr io.Writer) int {
 		return cmdRun(args[1:], stdout, stderr)
 	case "check":
 		return cmdCheck(args[1:], stdout, stderr)
+	case "worker":
+		return cmdWorker(args[1:], stdout, stderr)
 	case "version":
 		fmt.Fprintln(stdout, "ordplan", runner.Version)
 		return exitOK
@@ -184,6 +187,11 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		}
 		if base != nil {
 			render.BaselineTable(stdout, res, base)
+		}
+		if *stereotype && res.OK() {
+			if err := render.StereotypeTable(stdout, res); err != nil {
+				return fail(stderr, err)
+			}
 		}
 	}
 	if !res.OK() {

@@ -39,6 +39,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	previous := fs.String("previous", "", "output directory of an earlier run: say what changed in the decisions")
 	workers := fs.Int("workers", 0, "fits run at once (default: all cores); results do not depend on it")
 	quiet := fs.Bool("quiet", false, "no progress lines")
+	queueURL := fs.String("queue", "", "run the fits on ordplan worker processes through the JetStream server at this NATS URL")
 	// Accept the plan before or after the options.
 	var planPath string
 	if len(args) > 0 && len(args[0]) > 0 && args[0][0] != '-' {
@@ -50,7 +51,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	if planPath == "" && fs.NArg() == 1 {
 		planPath = fs.Arg(0)
 	} else if fs.NArg() > 0 || planPath == "" {
-		fmt.Fprintln(stderr, "usage: ordplan run PLAN.yaml [--out DIR] [--previous DIR] [--workers N]")
+		fmt.Fprintln(stderr, "usage: ordplan run PLAN.yaml [--out DIR] [--previous DIR] [--workers N] [--queue nats://HOST:PORT]")
 		return exitUsage
 	}
 	p, err := plan.Load(planPath)
@@ -67,7 +68,11 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	if !*quiet && isTerminal(os.Stderr) {
 		opt.Progress = os.Stderr
 	}
-	res, err := runner.Run(p, opt)
+	var queueLog io.Writer
+	if !*quiet {
+		queueLog = stderr
+	}
+	res, err := runPlan(p, opt, *queueURL, queueLog)
 	if err != nil {
 		return fail(stderr, err)
 	}

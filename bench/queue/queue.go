@@ -1,0 +1,117 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"fmt"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"sync"
+	"syscall"
+	"time"
+
+	"ordplan/plan"
+	"ordplan/runner"
+	"ordplan/runner/queue"
+	"ordplan/runner/queue/localserver"
+)
+
+// logBuffer collects the workers' logs.
+type logBuffer struct {
+	mu sync.Mutex
+	b  bytes.Buffer
+}
+
+func (l *logBuffer) Write(p []byte) (int, error) {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	return l.b.Write(p)
+}
+
+func (l *logBuffer) count(s string) int {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	return strings.Count(l.b.String(), s)
+}
+
+// queueRun runs the plan through a fresh server and n fresh worker
+// processes; the clock runs from the plan run's start to its end.
+func queueRun(p *plan.Plan, bin, tmp string, n int, ref map[string][]byte) (sample, error) {
+	dir, err := os.MkdirTemp(tmp, "run")
+	if err != nil {
+		return sample{}, err
+	}
+	defer os.RemoveAll(dir)
+	srv, err := localserver.Start(filepath.Join(dir, "store"))
+	if err != nil {
+		return sample{}, err
+	}
+	defer func() {
+		srv.Shutdown()
+		srv.WaitForShutdown()
+	}()
+	url := srv.ClientURL()
+	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Minute)
+	defer cancel()
+	c, err := queue.Connect(ctx, url, "ordplan bench")
+	if err != nil {
+		return sample{}, err
+	}
+	defer c.Close()
+	logs := &logBuffer{}
+	var procs []*exec.Cmd
+	for i := range n {
+		cmd := exec.Command(bin, "worker", "--queue", url, "--jobs", "1", "--name", fmt.Sprintf("w%d", i+1),
+			"--cache", filepath.Join(dir, fmt.Sprintf("cache%d", i+1)))
+		cmd.Stderr = logs
+		if err := cmd.Start(); err != nil {
+			return sample{}, err
+		}
+		procs = append(procs, cmd)
+	}
+	defer func() { stopAll(procs) }()
+	deadline := time.Now().Add(30 * time.Second)
+	for logs.count("ready") < n {
+		if time.Now().After(deadline) {
+			return sample{}, errors.New("the workers did not start within 30 s")
+		}
+		time.Sleep(10 * time.Millisecond)
+	}
+	co := queue.NewCoordinator(ctx, c, p.Hash, nil)
+	if _, err := co.AddData(p.Data.Path); err != nil {
+		return sample{}, err
+	}
+	ex := &timed{inner: co}
+	start := time.Now()
+	files, err := outputs(p, runner.Options{Executor: ex})
+	if err == nil {
+		err = co.Err()
+	}
+	if err != nil {
+		return sample{}, err
+	}
+	return sample{fits: ex.fits, fitTime: ex.took, runTime: time.Since(start), sameFile: equalFiles(files, ref)}, nil
+}
+
+// stopAll asks the workers to finish and kills those that do not.
+func stopAll(procs []*exec.Cmd) {
+	for _, p := range procs {
+		p.Process.Signal(syscall.SIGTERM)
+	}
+	for _, p := range procs {
+		done := make(chan struct{})
+		go func() {
+			p.Wait()
+			close(done)
+		}()
+		select {
+		case <-done:
+		case <-time.After(10 * time.Second):
+			p.Process.Kill()
+			<-done
+		}
+	}
+}

@@ -1,0 +1,329 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"regexp"
+	"strconv"
+	"strings"
+	"sync"
+	"syscall"
+	"testing"
+	"time"
+
+	"github.com/nats-io/nats.go"
+	"github.com/nats-io/nats.go/jetstream"
+
+	"ordplan/runner/queue"
+	"ordplan/runner/queue/localserver"
+)
+
+// The queue tests run real worker processes of the ordplan binary, built
+// once on first use into binDir.
+var (
+	binOnce sync.Once
+	binDir  string
+	binPath string
+	binErr  error
+)
+
+func TestMain(m *testing.M) {
+	code := m.Run()
+	if binDir != "" {
+		os.RemoveAll(binDir)
+	}
+	os.Exit(code)
+}
+
+func ordplanBinary(t *testing.T) string {
+	t.Helper()
+	binOnce.Do(func() {
+		if binDir, binErr = os.MkdirTemp("", "ordplan-queue-test"); binErr != nil {
+			return
+		}
+		binPath = filepath.Join(binDir, "ordplan")
+		out, err := exec.Command("go", "build", "-o", binPath, ".").CombinedOutput()
+		if err != nil {
+			binErr = &buildError{err, string(out)}
+		}
+	})
+	if binErr != nil {
+		t.Fatal(binErr)
+	}
+	return binPath
+}
+
+type buildError struct {
+	err error
+	out string
+}
+
+func (e *buildError) Error() string { return "go build: " + e.err.Error() + ": " + e.out }
+
+// lockedBuffer collects a process's output for the test to read.
+type lockedBuffer struct {
+	mu sync.Mutex
+	b  bytes.Buffer
+}
+
+func (l *lockedBuffer) Write(p []byte) (int, error) {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	return l.b.Write(p)
+}
+
+func (l *lockedBuffer) String() string {
+	l.mu.Lock()
+	defer l.mu.Unlock()
+	return l.b.String()
+}
+
+// startQueueServer runs a JetStream server on loopback for the test.
+func startQueueServer(t *testing.T) string {
+	t.Helper()
+	s, err := localserver.Start(t.TempDir())
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() {
+		s.Shutdown()
+		s.WaitForShutdown()
+	})
+	return s.ClientURL()
+}
+
+// proc is a child process of the test with its stderr collected.
+type proc struct {
+	cmd    *exec.Cmd
+	stderr *lockedBuffer
+	done   chan struct{}
+}
+
+func startProc(t *testing.T, env []string, args ...string) *proc {
+	t.Helper()
+	p := &proc{cmd: exec.Command(ordplanBinary(t), args...), stderr: &lockedBuffer{}, done: make(chan struct{})}
+	p.cmd.Env = append(os.Environ(), env...)
+	p.cmd.Stderr = p.stderr
+	if err := p.cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	go func() {
+		p.cmd.Wait()
+		close(p.done)
+	}()
+	t.Cleanup(func() { p.stop(t) })
+	return p
+}
+
+// startWorkerProc starts `ordplan worker` and waits until it takes jobs.
+func startWorkerProc(t *testing.T, url, name string, env ...string) *proc {
+	t.Helper()
+	p := startProc(t, env, "worker", "--queue", url, "--name", name, "--jobs", "1", "--ack-wait", "2s", "--cache", t.TempDir())
+	p.waitLog(t, 20*time.Second, "ready")
+	return p
+}
+
+func (p *proc) waitLog(t *testing.T, limit time.Duration, s string) {
+	t.Helper()
+	deadline := time.Now().Add(limit)
+	for !strings.Contains(p.stderr.String(), s) {
+		select {
+		case <-p.done:
+			t.Fatalf("process ended before logging %q: %s", s, p.stderr.String())
+		default:
+		}
+		if time.Now().After(deadline) {
+			t.Fatalf("no %q logged within %s: %s", s, limit, p.stderr.String())
+		}
+		time.Sleep(20 * time.Millisecond)
+	}
+}
+
+// kill ends the process at once, as a crash would.
+func (p *proc) kill(t *testing.T) {
+	t.Helper()
+	p.cmd.Process.Signal(syscall.SIGKILL)
+	select {
+	case <-p.done:
+	case <-time.After(10 * time.Second):
+		t.Fatal("a killed process did not end")
+	}
+}
+
+// stop asks the process to finish, then kills it if it does not.
+func (p *proc) stop(t *testing.T) {
+	select {
+	case <-p.done:
+		return
+	default:
+	}
+	p.cmd.Process.Signal(syscall.SIGTERM)
+	select {
+	case <-p.done:
+	case <-time.After(10 * time.Second):
+		t.Error("a process did not stop on SIGTERM")
+		p.kill(t)
+	}
+}
+
+var outputFiles = []string{"report.md", "report.html", "decisions.json", "run.json"}
+
+func sameOutputs(t *testing.T, want, got string) {
+	t.Helper()
+	for _, f := range outputFiles {
+		a, err1 := os.ReadFile(filepath.Join(want, f))
+		b, err2 := os.ReadFile(filepath.Join(got, f))
+		if err1 != nil || err2 != nil || !bytes.Equal(a, b) {
+			t.Errorf("%s differs from the local run (%v %v)", f, err1, err2)
+		}
+	}
+}
+
+// runAsync runs the CLI in-process in the background.
+func runAsync(args ...string) <-chan [3]string {
+	ch := make(chan [3]string, 1)
+	go func() {
+		out, errs, code := runCLI(args...)
+		ch <- [3]string{out, errs, strconv.Itoa(code)}
+	}()
+	return ch
+}
+
+func waitRun(t *testing.T, ch <-chan [3]string, limit time.Duration) [3]string {
+	t.Helper()
+	select {
+	case r := <-ch:
+		if r[2] != "0" {
+			t.Fatalf("exit %s: %s %s", r[2], r[0], r[1])
+		}
+		return r
+	case <-time.After(limit):
+		t.Fatalf("the queued run did not finish within %s", limit)
+	}
+	return [3]string{}
+}
+
+// A plan run through the queue writes the same files as a local run, byte
+// for byte, although the worker holding a job is killed: the job goes to
+// another worker after its ack deadline.
+func TestQueueRunSurvivesKilledWorker(t *testing.T) {
+	dir := t.TempDir()
+	plan := filepath.Join("..", "..", "runner", "testdata", "gss_stepwise.yaml")
+	local, remote := filepath.Join(dir, "local"), filepath.Join(dir, "queue")
+	if out, errs, code := runCLI("run", plan, "--out", local, "--quiet"); code != 0 {
+		t.Fatalf("local run: exit %d: %s %s", code, out, errs)
+	}
+	url := startQueueServer(t)
+	victim := startWorkerProc(t, url, "victim", testDelayEnv+"=60s")
+	run := runAsync("run", plan, "--out", remote, "--queue", url)
+	victim.waitLog(t, 30*time.Second, "started")
+	victim.kill(t)
+	w1 := startWorkerProc(t, url, "w1")
+	w2 := startWorkerProc(t, url, "w2")
+	r := waitRun(t, run, 60*time.Second)
+	sameOutputs(t, local, remote)
+	if logs := w1.stderr.String() + w2.stderr.String(); !strings.Contains(logs, "(delivery 2)") {
+		t.Errorf("the killed worker's job was not delivered again:\n%s", logs)
+	}
+	if !strings.Contains(r[1], "published") {
+		t.Errorf("no queue line on stderr: %s", r[1])
+	}
+}
+
+var batchLine = regexp.MustCompile(`(\d+) fits: (\d+) results present, (\d+) jobs still queued, (\d+) published`)
+
+// A coordinator killed mid-run is started again: it reuses the results
+// already stored, publishes only the missing jobs and writes the same
+// files as a local run.
+func TestQueueCoordinatorRestartResumes(t *testing.T) {
+	dir := t.TempDir()
+	plan := filepath.Join("..", "..", "runner", "testdata", "gss_grid.yaml")
+	local, remote := filepath.Join(dir, "local"), filepath.Join(dir, "queue")
+	if out, errs, code := runCLI("run", plan, "--out", local, "--quiet"); code != 0 {
+		t.Fatalf("local run: exit %d: %s %s", code, out, errs)
+	}
+	url := startQueueServer(t)
+	ctx, cancel := context.WithTimeout(context.Background(), 90*time.Second)
+	defer cancel()
+	nc, err := nats.Connect(url)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer nc.Close()
+	slow := startWorkerProc(t, url, "slow", testDelayEnv+"=250ms")
+	first := startProc(t, nil, "run", plan, "--out", filepath.Join(dir, "first"), "--queue", url)
+	first.waitLog(t, 30*time.Second, "published")
+	js, _ := jetstream.New(nc)
+	kv, err := js.KeyValue(ctx, queue.ResultBucket)
+	if err != nil {
+		t.Fatal(err)
+	}
+	deadline := time.Now().Add(30 * time.Second)
+	for {
+		keys, _ := kv.Keys(ctx)
+		if len(keys) >= 4 {
+			break
+		}
+		if time.Now().After(deadline) {
+			t.Fatalf("fewer than 4 results after 30 s: %s", slow.stderr.String())
+		}
+		time.Sleep(20 * time.Millisecond)
+	}
+	first.kill(t)
+	slow.kill(t)
+	// The queued jobs are lost too (as with a stream emptied by an
+	// operator), so the restarted coordinator must publish them again.
+	stream, err := js.Stream(ctx, queue.JobStream)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := stream.Purge(ctx); err != nil {
+		t.Fatal(err)
+	}
+	startWorkerProc(t, url, "w1")
+	startWorkerProc(t, url, "w2")
+	r := waitRun(t, runAsync("run", plan, "--out", remote, "--queue", url), 60*time.Second)
+	sameOutputs(t, local, remote)
+	m := batchLine.FindStringSubmatch(r[1])
+	if m == nil {
+		t.Fatalf("no queue line on stderr: %s", r[1])
+	}
+	t.Logf("restarted coordinator: %s", m[0])
+	n, present, queued, published := atoi(m[1]), atoi(m[2]), atoi(m[3]), atoi(m[4])
+	if present < 4 || published < 1 || queued != 0 || present+published != n {
+		t.Errorf("restart: %s", m[0])
+	}
+}
+
+func atoi(s string) int {
+	n, _ := strconv.Atoi(s)
+	return n
+}
+
+// Queue options with bad values fail with one line, never a hang.
+func TestQueueBadInput(t *testing.T) {
+	plan := filepath.Join("..", "..", "runner", "testdata", "gss_stepwise.yaml")
+	cases := []struct {
+		args []string
+		code int
+		want string
+	}{
+		{[]string{"worker"}, exitUsage, "--queue is required"},
+		{[]string{"worker", "--queue", "nats://127.0.0.1:4222", "--jobs", "0"}, exitUsage, "--jobs must be at least 1"},
+		{[]string{"worker", "--queue", "nats://127.0.0.1:4222", "extra"}, exitUsage, `unexpected argument "extra"`},
+		{[]string{"worker", "--queue", "nats://127.0.0.1:1"}, exitFail, "queue nats://127.0.0.1:1"},
+		{[]string{"run", plan, "--quiet", "--out", t.TempDir(), "--queue", "nats://127.0.0.1:1"}, exitFail, "queue nats://127.0.0.1:1"},
+	}
+	for _, c := range cases {
+		_, errs, code := runCLI(c.args...)
+		if code != c.code || !strings.Contains(errs, c.want) {
+			t.Errorf("%v: exit %d, stderr %q; want exit %d and %q", c.args, code, errs, c.code, c.want)
+		}
+		if c.code == exitFail && strings.Count(strings.TrimSpace(errs), "\n") != 0 {
+			t.Errorf("%v: more than one line: %q", c.args, errs)
+		}
+	}
+}

@@ -1,0 +1,120 @@
+package queue
+
+import (
+	"context"
+	"encoding/json"
+	"fmt"
+	"os"
+	"runtime/debug"
+	"sync"
+
+	"ordplan/data"
+	"ordplan/runner"
+	"ordplan/runner/fit"
+)
+
+// compute runs one task. Every failure, a panic included, becomes the
+// reply's error text.
+func (w *Worker) compute(ctx context.Context, t *Task) (r *Reply) {
+	r = &Reply{Batch: t.Batch, Index: t.Index, ID: t.ID}
+	defer func() {
+		if p := recover(); p != nil {
+			w.logf("worker %s: %s: panic: %v\n%s", w.Name, t.ID, p, debug.Stack())
+			r = &Reply{Batch: t.Batch, Index: t.Index, ID: t.ID, Err: fmt.Sprintf("%s: internal error on worker %s: %v", t.ID, w.Name, p)}
+		}
+	}()
+	var err error
+	switch t.Kind {
+	case KindFit:
+		if t.Fit == nil {
+			err = fmt.Errorf("job %s carries no fit", t.ID)
+			break
+		}
+		var path string
+		if path, err = w.cache.path(ctx, w.Client.data, t.Fit.DataHash, t.Fit.DataFile); err == nil {
+			r.Result, err = runner.ExecuteJob(path, *t.Fit)
+		}
+	case KindSums, KindDiag:
+		if t.Part == nil {
+			err = fmt.Errorf("job %s carries no partition", t.ID)
+			break
+		}
+		var d *fit.Data
+		if d, err = w.partition(ctx, t.Part); err != nil {
+			break
+		}
+		if t.Kind == KindSums {
+			r.Sums, err = fit.PartitionSums(d, t.Part.Model, t.Part.Theta, t.Part.Order)
+		} else {
+			r.Negative, r.MinProb, err = fit.PartitionDiagnostics(d, t.Part.Model, t.Part.Theta)
+		}
+		if err != nil {
+			err = fmt.Errorf("partition %s: %v", t.Part.Name, err)
+		}
+	default:
+		err = fmt.Errorf("job %s: unknown kind %q", t.ID, t.Kind)
+	}
+	if err != nil {
+		r.Result, r.Sums = nil, nil
+		r.Err = err.Error()
+	}
+	return r
+}
+
+// partition returns the fit data of a partition, loaded once per worker.
+func (w *Worker) partition(ctx context.Context, p *PartitionTask) (*fit.Data, error) {
+	path, err := w.cache.path(ctx, w.Client.data, p.DataHash, p.Name)
+	if err != nil {
+		return nil, err
+	}
+	opts, err := json.Marshal(p.DataOptions)
+	if err != nil {
+		return nil, err
+	}
+	return w.parts.get(p.DataHash+"\n"+string(opts), func() (*fit.Data, error) {
+		f, err := os.Open(path)
+		if err != nil {
+			return nil, fmt.Errorf("partition %s: %v", p.Name, err)
+		}
+		defer f.Close()
+		ds, err := data.Read(f, p.Name, p.DataOptions)
+		if err != nil {
+			return nil, fmt.Errorf("partition %w", err)
+		}
+		if len(ds.Levels) != p.J {
+			return nil, fmt.Errorf("partition %s has %d outcome categories, the whole data %d: give the categories in the data options", p.Name, len(ds.Levels), p.J)
+		}
+		return runner.FitData(ds), nil
+	})
+}
+
+// partitionCache keeps the last few loaded partitions.
+type partitionCache struct {
+	mu    sync.Mutex
+	size  int
+	keys  []string // oldest first
+	items map[string]*fit.Data
+}
+
+func newPartitionCache(size int) *partitionCache {
+	return &partitionCache{size: size, items: map[string]*fit.Data{}}
+}
+
+func (pc *partitionCache) get(key string, load func() (*fit.Data, error)) (*fit.Data, error) {
+	pc.mu.Lock()
+	defer pc.mu.Unlock()
+	if d, ok := pc.items[key]; ok {
+		return d, nil
+	}
+	d, err := load()
+	if err != nil {
+		return nil, err
+	}
+	if len(pc.keys) == pc.size {
+		delete(pc.items, pc.keys[0])
+		pc.keys = pc.keys[1:]
+	}
+	pc.keys = append(pc.keys, key)
+	pc.items[key] = d
+	return d, nil
+}

@@ -1,0 +1,163 @@
+package queue
+
+import (
+	"context"
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"sync"
+	"time"
+
+	"ordplan/runner"
+	"ordplan/runner/fit"
+)
+
+// Coordinator runs a plan's fits on workers: it is the plan run's
+// runner.Executor.
+type Coordinator struct {
+	ctx      context.Context
+	c        *Client
+	planHash string
+	log      io.Writer
+	files    map[string]string // data hash -> local path
+	mu       sync.Mutex
+	err      error
+	stats    []BatchStats
+}
+
+// NewCoordinator returns an executor for a run of the plan with the given
+// hash. ctx bounds every wait for workers; log (may be nil) gets one line
+// per batch.
+func NewCoordinator(ctx context.Context, c *Client, planHash string, log io.Writer) *Coordinator {
+	return &Coordinator{ctx: ctx, c: c, planHash: planHash, log: log, files: map[string]string{}}
+}
+
+// AddData registers a local data file so that jobs on it can upload it to
+// the data store; it returns the file's hash.
+func (co *Coordinator) AddData(path string) (string, error) {
+	h, err := HashFile(path)
+	if err != nil {
+		return "", fmt.Errorf("data file: %v", err)
+	}
+	co.files[h] = path
+	return h, nil
+}
+
+// Err returns the first failure of the queue itself (lost connection,
+// cancelled wait). The per-job errors Execute returns then only repeat it:
+// a run with Err set must not be reported.
+func (co *Coordinator) Err() error {
+	co.mu.Lock()
+	defer co.mu.Unlock()
+	return co.err
+}
+
+// Stats returns the statistics of every batch run so far.
+func (co *Coordinator) Stats() []BatchStats {
+	co.mu.Lock()
+	defer co.mu.Unlock()
+	return append([]BatchStats(nil), co.stats...)
+}
+
+// RunID identifies a batch of a plan's fits: a hash of the format and
+// program versions, the plan hash and the job list (which holds the data
+// hash, the data options, the models and the fit options).
+func RunID(planHash string, jobs []runner.Job) (string, error) {
+	h := sha256.New()
+	fmt.Fprintf(h, "%s\n%s\n%s\n", formatVersion, runner.Version, planHash)
+	enc := json.NewEncoder(h)
+	for _, j := range jobs {
+		if err := enc.Encode(j); err != nil {
+			return "", err
+		}
+	}
+	return hex.EncodeToString(h.Sum(nil)), nil
+}
+
+// Execute publishes the jobs, collects one result or error per job, in job
+// order, and reuses results a previous coordinator of the same run left.
+func (co *Coordinator) Execute(jobs []runner.Job) ([]*fit.Result, []error) {
+	results := make([]*fit.Result, len(jobs))
+	errs := make([]error, len(jobs))
+	replies, err := co.execute(jobs)
+	if err != nil {
+		co.mu.Lock()
+		if co.err == nil {
+			co.err = err
+		}
+		co.mu.Unlock()
+		for i := range errs {
+			errs[i] = err
+		}
+		return results, errs
+	}
+	for i, r := range replies {
+		switch {
+		case r.Err != "":
+			errs[i] = errors.New(r.Err)
+		case r.Result == nil:
+			errs[i] = fmt.Errorf("%s: the worker %s returned no result", jobs[i].ID, r.Worker)
+		default:
+			results[i] = r.Result
+		}
+	}
+	return results, errs
+}
+
+func (co *Coordinator) execute(jobs []runner.Job) ([]*Reply, error) {
+	if err := co.Err(); err != nil {
+		return nil, err
+	}
+	if len(jobs) == 0 {
+		return nil, nil
+	}
+	id, err := RunID(co.planHash, jobs)
+	if err != nil {
+		return nil, err
+	}
+	uploaded := map[string]bool{}
+	tasks := make([]*Task, len(jobs))
+	for i := range jobs {
+		j := jobs[i]
+		if !uploaded[j.DataHash] {
+			path, ok := co.files[j.DataHash]
+			if !ok {
+				return nil, fmt.Errorf("queue: no local file registered for data %s (sha256 %s)", j.DataFile, j.DataHash)
+			}
+			if err := co.c.PutData(co.ctx, path, j.DataHash); err != nil {
+				return nil, fmt.Errorf("queue: %v", err)
+			}
+			uploaded[j.DataHash] = true
+		}
+		tasks[i] = &Task{Batch: id, Index: i, ID: j.ID, Kind: KindFit, Fit: &j}
+	}
+	start := time.Now()
+	outcome := jobs[0].Outcome
+	last := start
+	progress := func(done int) {
+		if co.log != nil && time.Since(last) > 5*time.Second && done < len(jobs) {
+			last = time.Now()
+			fmt.Fprintf(co.log, "queue: %s: %d/%d fits done\n", outcome, done, len(jobs))
+		}
+	}
+	started := func(st BatchStats) {
+		if co.log != nil {
+			fmt.Fprintf(co.log, "queue: %s: run %s: %d fits: %d results present, %d jobs still queued, %d published\n",
+				outcome, id[:12], st.Jobs, st.Present, st.Queued, st.Published)
+		}
+	}
+	replies, st, err := co.c.runBatch(co.ctx, id, tasks, batchHooks{started: started, progress: progress})
+	co.mu.Lock()
+	co.stats = append(co.stats, st)
+	co.mu.Unlock()
+	if err != nil {
+		return nil, fmt.Errorf("queue: %s: %v", outcome, err)
+	}
+	if co.log != nil {
+		fmt.Fprintf(co.log, "queue: %s: all %d fits collected in %.1fs\n", outcome, len(jobs), time.Since(start).Seconds())
+	}
+	return replies, nil
+}

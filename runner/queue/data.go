@@ -1,0 +1,145 @@
+package queue
+
+import (
+	"context"
+	"crypto/sha256"
+	"encoding/base64"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"sync"
+
+	"github.com/nats-io/nats.go/jetstream"
+)
+
+// HashFile returns the hex SHA-256 of the file's bytes.
+func HashFile(path string) (string, error) {
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return "", err
+	}
+	return hashBytes(b), nil
+}
+
+func hashBytes(b []byte) string {
+	s := sha256.Sum256(b)
+	return hex.EncodeToString(s[:])
+}
+
+// PutData makes sure the data store holds the file at path under hash: it
+// uploads the bytes unless an object with that name and the right digest is
+// already there. The file must hash to hash.
+func (c *Client) PutData(ctx context.Context, path, hash string) error {
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return fmt.Errorf("data file: %v", err)
+	}
+	if got := hashBytes(b); got != hash {
+		return fmt.Errorf("data file %s: its bytes hash to %s, not %s (did it change during the run?)", path, got, hash)
+	}
+	want := sha256.Sum256(b)
+	info, err := c.data.GetInfo(ctx, hash)
+	if err == nil && info.Digest == "SHA-256="+base64.URLEncoding.EncodeToString(want[:]) {
+		return nil
+	}
+	if err != nil && !errors.Is(err, jetstream.ErrObjectNotFound) {
+		return fmt.Errorf("data store: %v", err)
+	}
+	if _, err := c.data.PutBytes(ctx, hash, b); err != nil {
+		return fmt.Errorf("data store: uploading %s: %v", path, err)
+	}
+	return nil
+}
+
+// dataCache keeps data files fetched from the store in a local folder,
+// named by their hash.
+type dataCache struct {
+	dir      string
+	mu       sync.Mutex
+	verified map[string]stamp // files checked by this process
+}
+
+// stamp identifies a checked file: a file changed since gets checked again.
+type stamp struct {
+	size int64
+	mod  int64
+}
+
+func stampOf(p string) (stamp, bool) {
+	fi, err := os.Stat(p)
+	if err != nil {
+		return stamp{}, false
+	}
+	return stamp{fi.Size(), fi.ModTime().UnixNano()}, true
+}
+
+func newDataCache(dir string) *dataCache {
+	return &dataCache{dir: dir, verified: map[string]stamp{}}
+}
+
+// DefaultCacheDir is the user's cache folder for ordplan data files.
+func DefaultCacheDir() (string, error) {
+	base, err := os.UserCacheDir()
+	if err != nil {
+		return "", err
+	}
+	return filepath.Join(base, "ordplan", "data"), nil
+}
+
+// path returns the local path of the data file with the given hash,
+// fetching it when it is absent or its bytes do not hash to hash. A file
+// whose fetched bytes do not match is refused.
+func (dc *dataCache) path(ctx context.Context, store jetstream.ObjectStore, hash, name string) (string, error) {
+	if len(hash) != 64 {
+		return "", fmt.Errorf("data %s: %q is not a SHA-256 hash", name, hash)
+	}
+	if _, err := hex.DecodeString(hash); err != nil {
+		return "", fmt.Errorf("data %s: %q is not a SHA-256 hash", name, hash)
+	}
+	dc.mu.Lock()
+	defer dc.mu.Unlock()
+	p := filepath.Join(dc.dir, hash)
+	if st, ok := stampOf(p); ok && dc.verified[hash] == st {
+		return p, nil
+	}
+	if b, err := os.ReadFile(p); err == nil && hashBytes(b) == hash {
+		dc.remember(hash, p)
+		return p, nil
+	}
+	b, err := store.GetBytes(ctx, hash)
+	if err != nil {
+		return "", fmt.Errorf("data %s (sha256 %s): fetching it from the data store: %v", name, hash, err)
+	}
+	if got := hashBytes(b); got != hash {
+		return "", fmt.Errorf("data %s: the data store's copy hashes to %s, not %s; refusing to fit on it", name, got, hash)
+	}
+	if err := os.MkdirAll(dc.dir, 0o755); err != nil {
+		return "", fmt.Errorf("data cache: %v", err)
+	}
+	tmp, err := os.CreateTemp(dc.dir, hash+".*.part")
+	if err != nil {
+		return "", fmt.Errorf("data cache: %v", err)
+	}
+	_, werr := tmp.Write(b)
+	cerr := tmp.Close()
+	if werr == nil {
+		werr = cerr
+	}
+	if werr == nil {
+		werr = os.Rename(tmp.Name(), p)
+	}
+	if werr != nil {
+		os.Remove(tmp.Name())
+		return "", fmt.Errorf("data cache: %v", werr)
+	}
+	dc.remember(hash, p)
+	return p, nil
+}
+
+func (dc *dataCache) remember(hash, p string) {
+	if st, ok := stampOf(p); ok {
+		dc.verified[hash] = st
+	}
+}

@@ -1,0 +1,44 @@
+// Package queue runs a plan's fits on worker processes through NATS
+// JetStream.
+//
+// With a JetStream server reachable by every machine (for example
+// `nats-server -js`):
+//
+//	ordplan worker --queue nats://HOST:4222             # on each worker machine
+//	ordplan run plan.yaml --queue nats://HOST:4222      # writes the same report as a local run
+//
+// Stepwise selection, the tests and the rules run on the coordinator; the
+// grid's fits run on the workers through runner.ExecuteJob, which reads
+// the data and fits as a local run does, and come back gob-encoded, so the
+// report is the same byte for byte. FitPartitioned fits one model on data
+// split into partitions that only the workers read.
+//
+// The coordinator (ordplan run --queue URL) and the workers (ordplan worker
+// --queue URL) share three JetStream resources:
+//
+//   - the stream ORDPLAN_JOBS (work-queue retention, file storage) on the
+//     subjects ordplan.jobs.<batch>.<index>, read by the durable pull
+//     consumer "ordplan-workers" that every worker shares; a job leaves the
+//     stream when a worker acknowledges it, and is delivered again when its
+//     ack deadline passes without an acknowledgement (a worker that died);
+//     workers send in-progress acknowledgements while they fit, so long
+//     healthy jobs are not delivered twice;
+//   - the key-value bucket ordplan-results, where a worker stores the reply
+//     to job <index> of batch <batch> under the key <batch>.<index> with a
+//     create-only write, so the first reply wins and a second one is
+//     dropped;
+//   - the object store ordplan-data, where data files are kept under the
+//     hex SHA-256 of their bytes; workers copy them into a local cache and
+//     check the hash before fitting.
+//
+// A batch is the set of fits of one outcome of a plan run (its id hashes the
+// program version, the plan hash and the job list, data hash included), or
+// one evaluation of a partitioned fit (its id hashes the model, the
+// partitions, the parameters and the derivative order). Ids are content
+// hashes, so a restarted coordinator finds the replies already stored,
+// publishes only the jobs that have neither a reply nor a queued message,
+// and collects the rest.
+//
+// Messages are gob-encoded: a Task on the jobs stream and a Reply in the
+// bucket. Gob keeps NaN and infinite values, which a fit result may hold.
+package queue

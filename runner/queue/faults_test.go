@@ -1,0 +1,174 @@
+package queue
+
+import (
+	"context"
+	"math"
+	"strings"
+	"testing"
+	"time"
+
+	"ordplan/data"
+	"ordplan/runner"
+	"ordplan/runner/fit"
+)
+
+// storeReply writes a reply as a misbehaving or late worker would.
+func storeReply(t *testing.T, ctx context.Context, c *Client, key string, r *Reply, overwrite bool) {
+	t.Helper()
+	b, err := encode(r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if overwrite {
+		_, err = c.results.Put(ctx, key, b)
+	} else {
+		_, err = c.results.Create(ctx, key, b)
+	}
+	if err != nil {
+		t.Fatal(err)
+	}
+}
+
+// The first reply to a job wins: a worker's duplicate, a later overwrite
+// and entries of unknown runs or keys are ignored.
+func TestDuplicateAndForeignRepliesIgnored(t *testing.T) {
+	ctx := testContext(t, 60*time.Second)
+	url := startServer(t)
+	c := connect(t, ctx, url)
+	path, jobs := gssJobs(t, "parallel", "nonparallel")
+	co := NewCoordinator(ctx, c, "plan-hash", nil)
+	if _, err := co.AddData(path); err != nil {
+		t.Fatal(err)
+	}
+	type out struct {
+		res  []*fit.Result
+		errs []error
+	}
+	done := make(chan out, 1)
+	go func() {
+		r, e := co.Execute(jobs)
+		done <- out{r, e}
+	}()
+	waitFor(t, 10*time.Second, "the jobs in the stream", func() bool {
+		info, err := c.jobs.Info(ctx)
+		return err == nil && info.State.Msgs == 2
+	})
+	id, err := RunID("plan-hash", jobs)
+	if err != nil {
+		t.Fatal(err)
+	}
+	first, err := runner.ExecuteJob(path, jobs[0])
+	if err != nil {
+		t.Fatal(err)
+	}
+	first.Iterations = 999 // marks the first reply
+	storeReply(t, ctx, c, resultKey(id, 0), &Reply{Batch: id, Index: 0, ID: jobs[0].ID, Worker: "first", Result: first}, false)
+	late := *first
+	late.Iterations = 777
+	storeReply(t, ctx, c, resultKey(id, 0), &Reply{Batch: id, Index: 0, ID: jobs[0].ID, Worker: "late", Result: &late}, true)
+	other := strings.Repeat("f", 64)
+	storeReply(t, ctx, c, resultKey(other, 1), &Reply{Batch: other, Index: 1, ID: jobs[1].ID, Err: "foreign"}, false)
+	storeReply(t, ctx, c, id+".x", &Reply{Batch: id, Index: 1, ID: jobs[1].ID, Err: "bad key"}, false)
+	// The worker computes both queued jobs; its reply to job 0 is a duplicate.
+	log := startWorker(t, url, "w1", 5*time.Second, 0)
+	var o out
+	select {
+	case o = <-done:
+	case <-ctx.Done():
+		t.Fatal("the coordinator did not finish")
+	}
+	if o.errs[0] != nil || o.errs[1] != nil {
+		t.Fatalf("errors: %v", o.errs)
+	}
+	if o.res[0].Iterations != 999 {
+		t.Errorf("job 0: the reply with %d iterations was taken, not the first", o.res[0].Iterations)
+	}
+	want, _ := runner.ExecuteJob(path, jobs[1])
+	if math.Float64bits(o.res[1].LogLik) != math.Float64bits(want.LogLik) {
+		t.Errorf("job 1: %v, want %v", o.res[1].LogLik, want.LogLik)
+	}
+	waitFor(t, 10*time.Second, "the duplicate dropped", func() bool {
+		return strings.Contains(log.String(), "duplicate is dropped")
+	})
+	if e, err := c.results.Get(ctx, resultKey(id, 0)); err != nil || e.Revision() == 0 {
+		t.Fatalf("key: %v", err)
+	}
+}
+
+// A worker refuses data whose bytes do not hash to the job's hash; the
+// coordinator replaces such a copy before publishing.
+func TestDataHashMismatchRefused(t *testing.T) {
+	ctx := testContext(t, 60*time.Second)
+	url := startServer(t)
+	c := connect(t, ctx, url)
+	path, jobs := gssJobs(t, "parallel")
+	if _, err := c.data.PutBytes(ctx, jobs[0].DataHash, []byte("warm,yr89\n1,0\n2,1\n")); err != nil {
+		t.Fatal(err)
+	}
+	startWorker(t, url, "w1", 5*time.Second, 0)
+	task := &Task{Batch: "mismatch", Index: 0, ID: jobs[0].ID, Kind: KindFit, Fit: &jobs[0]}
+	replies, _, err := c.runBatch(ctx, "mismatch", []*Task{task}, batchHooks{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r := replies[0]; r.Result != nil || !strings.Contains(r.Err, "refusing to fit") || !strings.Contains(r.Err, jobs[0].DataHash) {
+		t.Fatalf("reply: %+v", r)
+	}
+	co := NewCoordinator(ctx, c, "plan-hash", nil)
+	if _, err := co.AddData(path); err != nil {
+		t.Fatal(err)
+	}
+	res, errs := co.Execute(jobs)
+	if errs[0] != nil || !res[0].OK() {
+		t.Fatalf("after the coordinator's upload: %v", errs[0])
+	}
+}
+
+// A job that takes longer than the ack deadline stays with its worker,
+// which keeps it with in-progress acknowledgements: it is delivered once.
+func TestLongJobKeptByInProgressAcks(t *testing.T) {
+	ctx := testContext(t, 60*time.Second)
+	url := startServer(t)
+	c := connect(t, ctx, url)
+	path, jobs := gssJobs(t, "parallel")
+	if err := c.PutData(ctx, path, jobs[0].DataHash); err != nil {
+		t.Fatal(err)
+	}
+	slow := startWorker(t, url, "slow", time.Second, 3*time.Second)
+	task := &Task{Batch: "long", Index: 0, ID: jobs[0].ID, Kind: KindFit, Fit: &jobs[0]}
+	type out struct {
+		replies []*Reply
+		err     error
+	}
+	done := make(chan out, 1)
+	go func() {
+		r, _, err := c.runBatch(ctx, "long", []*Task{task}, batchHooks{})
+		done <- out{r, err}
+	}()
+	waitFor(t, 10*time.Second, "the slow worker to take the job", func() bool { return strings.Contains(slow.String(), "started") })
+	startWorker(t, url, "fast", time.Second, 0)
+	o := <-done
+	if o.err != nil {
+		t.Fatal(o.err)
+	}
+	if r := o.replies[0]; r.Worker != "slow" || r.Delivered != 1 || r.Err != "" {
+		t.Fatalf("reply from %s at delivery %d (%s): the job was handed out again", r.Worker, r.Delivered, r.Err)
+	}
+}
+
+// A partition holding one outcome category is refused with the reader's
+// message, naming the partition.
+func TestPartitionWithOneCategoryRefused(t *testing.T) {
+	ctx := testContext(t, 30*time.Second)
+	url := startServer(t)
+	c := connect(t, ctx, url)
+	startWorker(t, url, "w1", 5*time.Second, 0)
+	dir := t.TempDir()
+	parts := []PartitionRef{writePart(t, dir, "a.csv", "y,x\n1,0\n2,1\n1,1\n"), writePart(t, dir, "b.csv", "y,x\n2,0\n2,1\n")}
+	whole := fit.Whole{J: 2, Predictors: []string{"x"}, Levels: []string{"1", "2"}, Counts: []float64{2, 3}, Rows: 5}
+	m, _ := runner.Spec{Approach: "cumulative", Link: "logit", Predictors: []string{"x"}}.Model()
+	_, err := FitPartitioned(ctx, c, parts, whole, m, PartitionOptions{Data: data.Options{Outcome: "y", Predictors: []string{"x"}}})
+	if err == nil || !strings.Contains(err.Error(), `partition b.csv: column "y": only one category`) {
+		t.Fatalf("got %v", err)
+	}
+}

@@ -1,0 +1,132 @@
+package queue
+
+import (
+	"bytes"
+	"context"
+	"path/filepath"
+	"strings"
+	"sync"
+	"testing"
+	"time"
+
+	"ordplan/data"
+	"ordplan/runner"
+	"ordplan/runner/fit"
+	"ordplan/runner/queue/localserver"
+)
+
+var refDir = filepath.Join("..", "..", "..", "shared", "reference")
+
+var gssPredictors = []string{"yr89", "male", "white", "age", "ed", "prst"}
+
+// testContext bounds a test: every wait ends within the limit.
+func testContext(t *testing.T, limit time.Duration) context.Context {
+	ctx, cancel := context.WithTimeout(context.Background(), limit)
+	t.Cleanup(cancel)
+	return ctx
+}
+
+// startServer runs a JetStream server on loopback for the test and returns
+// its URL.
+func startServer(t *testing.T) string {
+	t.Helper()
+	s, err := localserver.Start(t.TempDir())
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() {
+		s.Shutdown()
+		s.WaitForShutdown()
+	})
+	return s.ClientURL()
+}
+
+func connect(t *testing.T, ctx context.Context, url string) *Client {
+	t.Helper()
+	c, err := Connect(ctx, url, "ordplan-test")
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(c.Close)
+	return c
+}
+
+// syncBuffer is a log that goroutines can share.
+type syncBuffer struct {
+	mu  sync.Mutex
+	buf bytes.Buffer
+}
+
+func (b *syncBuffer) Write(p []byte) (int, error) {
+	b.mu.Lock()
+	defer b.mu.Unlock()
+	return b.buf.Write(p)
+}
+
+func (b *syncBuffer) String() string {
+	b.mu.Lock()
+	defer b.mu.Unlock()
+	return b.buf.String()
+}
+
+// waitFor polls cond until it holds or the limit passes.
+func waitFor(t *testing.T, limit time.Duration, what string, cond func() bool) {
+	t.Helper()
+	deadline := time.Now().Add(limit)
+	for !cond() {
+		if time.Now().After(deadline) {
+			t.Fatalf("timed out after %s waiting for %s", limit, what)
+		}
+		time.Sleep(20 * time.Millisecond)
+	}
+}
+
+// startWorker runs a worker in a goroutine, on its own connection and
+// cache, until the test ends; its log is returned.
+func startWorker(t *testing.T, url, name string, ackWait, delay time.Duration) *syncBuffer {
+	t.Helper()
+	ctx, cancel := context.WithCancel(context.Background())
+	c := connect(t, ctx, url)
+	log := &syncBuffer{}
+	w := &Worker{Client: c, Name: name, CacheDir: t.TempDir(), AckWait: ackWait, Delay: delay, Log: log}
+	done := make(chan struct{})
+	go func() {
+		defer close(done)
+		if err := w.Run(ctx); err != nil {
+			t.Error(err)
+		}
+	}()
+	t.Cleanup(func() {
+		cancel()
+		select {
+		case <-done:
+		case <-time.After(15 * time.Second):
+			t.Error("worker did not stop")
+		}
+	})
+	waitFor(t, 10*time.Second, name+" ready", func() bool { return strings.Contains(log.String(), "ready") })
+	return log
+}
+
+// gssJobs returns fits of the General Social Survey extract (Long 1997) as
+// plan jobs.
+func gssJobs(t *testing.T, levels ...string) (string, []runner.Job) {
+	t.Helper()
+	path := filepath.Join(refDir, "gsswarm.csv")
+	h, err := HashFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var jobs []runner.Job
+	for i, lv := range levels {
+		spec, err := runner.LevelSpec("cumulative", false, "logit", lv, gssPredictors, []string{"yr89", "male"}, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		jobs = append(jobs, runner.Job{Outcome: "warm", Index: i, ID: "cumulative/" + lv + "/logit", Spec: spec,
+			DataFile: "gsswarm.csv", DataHash: h,
+			DataOptions: data.Options{Outcome: "warm", Predictors: gssPredictors},
+			FitOptions:  fit.Options{Covariance: "oim", Workers: 1}})
+	}
+	return path, jobs
+}

@@ -1,0 +1,34 @@
+// Package localserver starts a NATS server with JetStream inside the
+// process, listening on the loopback interface only. Tests and the queue
+// benchmark use it; production runs use a separately run server.
+package localserver
+
+import (
+	"errors"
+	"time"
+
+	"github.com/nats-io/nats-server/v2/server"
+)
+
+// Start runs a JetStream server on 127.0.0.1 at a free port, storing its
+// streams under dir. The caller calls Shutdown (and WaitForShutdown).
+func Start(dir string) (*server.Server, error) {
+	s, err := server.NewServer(&server.Options{
+		ServerName: "ordplan-local",
+		Host:       "127.0.0.1",
+		Port:       server.RANDOM_PORT,
+		JetStream:  true,
+		StoreDir:   dir,
+		NoLog:      true,
+		NoSigs:     true,
+	})
+	if err != nil {
+		return nil, err
+	}
+	go s.Start()
+	if !s.ReadyForConnections(10 * time.Second) {
+		s.Shutdown()
+		return nil, errors.New("the local NATS server did not start within 10 s")
+	}
+	return s, nil
+}

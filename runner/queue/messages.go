@@ -1,0 +1,65 @@
+package queue
+
+import (
+	"bytes"
+	"encoding/gob"
+
+	"ordplan/data"
+	"ordplan/runner"
+	"ordplan/runner/fit"
+)
+
+// Kinds of task.
+const (
+	KindFit  = "fit"  // fit one model of a plan on a whole data file
+	KindSums = "sums" // log-likelihood (and derivatives) of one partition
+	KindDiag = "diag" // fitted-probability diagnostics of one partition
+)
+
+// Task is one job message: what a worker computes.
+type Task struct {
+	Batch string // batch id: the first part of the reply key
+	Index int    // position in the batch: the second part
+	ID    string // what the reply must name: the fit id or the partition hash
+	Kind  string
+	Fit   *runner.Job    // KindFit
+	Part  *PartitionTask // KindSums, KindDiag
+}
+
+// PartitionTask asks for one partition's sums (or diagnostics) at theta.
+type PartitionTask struct {
+	Name        string // partition name, for messages
+	DataHash    string // hex SHA-256 of the partition file
+	DataOptions data.Options
+	J           int // categories of the whole data
+	Model       fit.Model
+	Theta       []float64
+	Order       int // 0 log-likelihood, 1 and score, 2 and second derivatives
+}
+
+// Reply is what a worker stores for a task. Exactly one of Result, Sums or
+// Err is meaningful; diagnostics fill Negative and MinProb.
+type Reply struct {
+	Batch     string
+	Index     int
+	ID        string
+	Worker    string // which worker computed it
+	Delivered uint64 // delivery count of the job message when it was done
+	Result    *fit.Result
+	Sums      *fit.Sums
+	Negative  int
+	MinProb   float64
+	Err       string
+}
+
+func encode(v any) ([]byte, error) {
+	var buf bytes.Buffer
+	if err := gob.NewEncoder(&buf).Encode(v); err != nil {
+		return nil, err
+	}
+	return buf.Bytes(), nil
+}
+
+func decode(b []byte, v any) error {
+	return gob.NewDecoder(bytes.NewReader(b)).Decode(v)
+}
