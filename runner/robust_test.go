@@ -1,6 +1,7 @@
 package runner
 
 import (
+	"fmt"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -69,5 +70,39 @@ covariance: cluster
 	v := verdictOf(or.Rules[0], "cumulative/parallel/logit")
 	if v == nil || !strings.Contains(v.Reason, "the Wald test replaces the likelihood-ratio test") {
 		t.Errorf("verdict %+v", v)
+	}
+}
+
+// Stepwise selection tests with the plan's standard errors: cluster-robust
+// Wald tests differ from observed-information ones.
+func TestStepwiseUsesPlanCovariance(t *testing.T) {
+	dir := t.TempDir()
+	src, _ := os.ReadFile(filepath.Join("..", "plans", "data", "quietstreets.csv"))
+	os.WriteFile(filepath.Join(dir, "d.csv"), src, 0o644)
+	base := `version: 1
+title: stepwise
+data: {file: d.csv%s}
+outcomes: [{column: safety, categories: [very_unsafe, unsafe, neutral, safe, very_safe]}]
+predictors: [pilot, female, age]
+models: {approaches: [cumulative], levels: [parallel, partial], partial: {select: {method: stepwise, alpha: 0.05}}}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: bic}
+%s`
+	chi := func(data, cov string) float64 {
+		os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(fmt.Sprintf(base, data, cov)), 0o644)
+		p, err := plan.Load(filepath.Join(dir, "p.yaml"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		r, err := Run(p, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return r.Outcomes[0].Stepwise[0].Result.Steps[0].Tests[0].Chi2
+	}
+	oim, cl := chi("", ""), chi(", cluster: district", "covariance: cluster\n")
+	if oim == cl || oim <= 0 || cl <= 0 {
+		t.Fatalf("stepwise chi2 with OIM %v and cluster %v", oim, cl)
 	}
 }

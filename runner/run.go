@@ -115,8 +115,13 @@ func runOutcome(p *plan.Plan, oc plan.Outcome, opt Options, dataHash string) (*O
 	links := p.Models.Links
 	backward := p.Models.Direction == "backward"
 
-	// 1. The partial set of each approach: listed, or selected stepwise.
-	or.FreeSets, or.Stepwise = freeSets(p, or.FitData, backward, fopt, opt.Workers)
+	// 1. The partial set of each approach: listed, or selected stepwise
+	// (with the plan's standard errors).
+	swopt := fopt
+	if sw := sandwichFor(p, ds); sw != nil {
+		swopt.Sandwich = sw
+	}
+	or.FreeSets, or.Stepwise = freeSets(p, or.FitData, backward, swopt, opt.Workers)
 
 	// 2. The grid of candidate fits and the auxiliary fits the tests need.
 	jobs, notes := gridJobs(p, or.FreeSets, backward)

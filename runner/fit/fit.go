@@ -36,6 +36,10 @@ type Options struct {
 	// RandomStarts is the number of random starts of a model with
 	// constrained predictors: 0 means 5, a negative number none.
 	RandomStarts int
+	// Sandwich, when set, replaces the covariance of every usable fit that
+	// Stepwise makes before it tests (robust or cluster-robust errors).
+	// Fit itself ignores it.
+	Sandwich func(*Result) error `json:"-"`
 }
 
 // Status of a fit.

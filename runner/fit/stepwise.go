@@ -58,7 +58,14 @@ func Stepwise(d *Data, base Model, candidates []string, alpha float64, test stri
 	}
 	model := base
 	model.Effects = eff
-	cur, err := Fit(d, model, opt)
+	fitOne := func(m Model) (*Result, error) {
+		r, err := Fit(d, m, opt)
+		if err == nil && opt.Sandwich != nil && r.OK() {
+			err = opt.Sandwich(r)
+		}
+		return r, err
+	}
+	cur, err := fitOne(model)
 	if err != nil {
 		sr.Reason = err.Error()
 		return sr
@@ -85,7 +92,7 @@ func Stepwise(d *Data, base Model, candidates []string, alpha float64, test stri
 				m := cur.Model
 				m.Effects = append([]Effect(nil), cur.Model.Effects...)
 				m.Effects[k] = Parallel
-				alt, err = Fit(d, m, opt)
+				alt, err = fitOne(m)
 				if err != nil {
 					t = failedTest("lr", "%v", err)
 				} else {
@@ -109,7 +116,7 @@ func Stepwise(d *Data, base Model, candidates []string, alpha float64, test stri
 			m := cur.Model
 			m.Effects = append([]Effect(nil), cur.Model.Effects...)
 			m.Effects[best] = Parallel
-			bestFit, err = Fit(d, m, opt)
+			bestFit, err = fitOne(m)
 			if err != nil {
 				sr.Reason = err.Error()
 				return sr
