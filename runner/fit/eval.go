@@ -21,6 +21,15 @@ type design struct {
 	y    []int     // 0..J-1
 	w    []float64 // nil: all 1
 	off  []float64 // nil: all 0
+	mult []int     // rows merged into each row (compressed designs; nil: 1)
+}
+
+// rowsBehind is the number of original rows that row i stands for.
+func (d *design) rowsBehind(i int) int {
+	if d.mult == nil {
+		return 1
+	}
+	return d.mult[i]
 }
 
 func (d *design) weight(i int) float64 {

@@ -137,7 +137,7 @@ func (p *problem) fittedCheck(theta []float64) (float64, int) {
 			}
 		}
 		if bad {
-			neg++
+			neg += d.rowsBehind(i)
 		}
 		minP = math.Min(minP, pr[d.y[i]])
 	}

@@ -154,7 +154,7 @@ func Fit(d *Data, m Model, opt Options) (*Result, error) {
 	if opt.MaxIter <= 0 {
 		opt.MaxIter = 200
 	}
-	des := d.design()
+	des := d.design().compressed()
 	pr := newProblem(des, m, ly, opt.Workers)
 	start := opt.Start
 	if start != nil && len(start) != len(ly.params) {

@@ -1,0 +1,77 @@
+package fit
+
+import (
+	"encoding/binary"
+	"math"
+)
+
+// compressed returns the design with identical rows (same predictors,
+// outcome and offset) merged into one row carrying the summed weight, in
+// order of first appearance, when that at least halves the rows; otherwise
+// d itself. Tabulated data and registers of categorical predictors fit in
+// time proportional to their distinct rows. mult counts the original rows
+// behind each merged row (for row-level diagnostics).
+func (d *design) compressed() *design {
+	n, K := d.n, d.K
+	if n < 64 {
+		return d
+	}
+	// A sample decides cheaply whether merging can pay.
+	sample := min(n, 4096)
+	keyOf := func(i int, buf []byte) []byte {
+		buf = buf[:0]
+		for _, v := range d.x[i*K : (i+1)*K] {
+			buf = binary.LittleEndian.AppendUint64(buf, math.Float64bits(v))
+		}
+		buf = binary.LittleEndian.AppendUint64(buf, uint64(d.y[i]))
+		if d.off != nil {
+			buf = binary.LittleEndian.AppendUint64(buf, math.Float64bits(d.off[i]))
+		}
+		return buf
+	}
+	buf := make([]byte, 0, 8*(K+2))
+	seen := make(map[string]struct{}, sample)
+	for i := 0; i < sample; i++ {
+		seen[string(keyOf(i, buf))] = struct{}{}
+	}
+	if 4*len(seen) > 3*sample {
+		return d
+	}
+	index := make(map[string]int)
+	var rows []int
+	for i := 0; i < n; i++ {
+		if d.weight(i) == 0 {
+			continue
+		}
+		k := string(keyOf(i, buf))
+		if _, ok := index[k]; !ok {
+			if 2*len(rows) >= n {
+				return d // too few repeats after all
+			}
+			index[k] = len(rows)
+			rows = append(rows, i)
+		}
+	}
+	c := &design{n: len(rows), K: K, x: make([]float64, len(rows)*K), y: make([]int, len(rows)),
+		w: make([]float64, len(rows)), mult: make([]int, len(rows))}
+	if d.off != nil {
+		c.off = make([]float64, len(rows))
+	}
+	for j, i := range rows {
+		copy(c.x[j*K:(j+1)*K], d.x[i*K:(i+1)*K])
+		c.y[j] = d.y[i]
+		if d.off != nil {
+			c.off[j] = d.off[i]
+		}
+	}
+	for i := 0; i < n; i++ {
+		w := d.weight(i)
+		if w == 0 {
+			continue
+		}
+		j := index[string(keyOf(i, buf))]
+		c.w[j] += w
+		c.mult[j]++
+	}
+	return c
+}
