@@ -107,6 +107,9 @@ func judge(r plan.Rule, p *plan.Plan, or *OutcomeResult, f *FitEntry) (bool, str
 		if !res.OK() {
 			return false, fmt.Sprintf("status %s: %s", res.Status, res.Message)
 		}
+		if len(res.Starts) > 0 {
+			return true, fmt.Sprintf("converged: best of %d starts, %d reaching it, max |score| %.2g", len(res.Starts), res.StartsAgreeing, res.MaxAbsScore)
+		}
 		return true, fmt.Sprintf("converged in %d iterations, max |score| %.2g", res.Iterations, res.MaxAbsScore)
 	case plan.RuleRejectNegativeProbabilities:
 		if res.Status == fit.StatusNegativeProbs {
