@@ -93,6 +93,10 @@ func covName(c string) string {
 		return "expected information"
 	case fit.CovOIM:
 		return "observed information"
+	case fit.CovRobust:
+		return "sandwich (HC1: times N/(N-P))"
+	case fit.CovCluster:
+		return "cluster-robust sandwich (CR1: times G/(G-1) (N-1)/(N-P))"
 	}
 	return c
 }

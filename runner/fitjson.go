@@ -34,6 +34,18 @@ type FitRecord struct {
 	Condition    *float64             `json:"information_condition"`
 	SupLogLik    *float64             `json:"loglik_supremum,omitempty"`
 	Separation   *fit.Separation      `json:"separation,omitempty"`
+	Starts       []StartJSON          `json:"starts,omitempty"`
+	StartsAgree  int                  `json:"starts_reaching_best,omitempty"`
+	PhiNotes     []string             `json:"phi_notes,omitempty"`
+}
+
+// StartJSON is one start of a constrained fit's search.
+type StartJSON struct {
+	Label       string   `json:"label"`
+	LogLik      *float64 `json:"loglik"`
+	ReachedBest bool     `json:"reached_best"`
+	Iterations  int      `json:"iterations"`
+	Reason      string   `json:"reason,omitempty"`
 }
 
 func num(x float64) *float64 {
@@ -50,6 +62,14 @@ func Record(r *fit.Result) FitRecord {
 		Status: string(r.Status), Message: r.Message, Converged: r.Converged, Iterations: r.Iterations,
 		MaxAbsScore: num(r.MaxAbsScore), NParams: r.NParams, NObs: r.NObs,
 		NegativeRows: r.NegativeRows, Condition: num(r.Condition), Separation: r.Separation,
+		StartsAgree: r.StartsAgreeing, PhiNotes: r.PhiNotes,
+	}
+	for _, s := range r.Starts {
+		rec.Starts = append(rec.Starts, StartJSON{Label: s.Label, LogLik: num(s.LogLik), ReachedBest: s.ReachedBest, Iterations: s.Iterations, Reason: s.Reason})
+	}
+	if r.Status == fit.StatusNotIdentified {
+		// The maximum is finite; only phi is not identified.
+		rec.LogLik, rec.AIC, rec.BIC = num(r.LogLik), num(r.AIC), num(r.BIC)
 	}
 	if !r.OK() {
 		if r.Status == fit.StatusNoFiniteMaximum {

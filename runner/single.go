@@ -19,7 +19,9 @@ type SingleFit struct {
 	Nonparallel []string
 	Groups      []Group
 	Weights     string
+	Probability bool // the weights are probability (sampling) weights
 	Offset      string
+	Cluster     string // cluster column for covariance "cluster"
 	Refuse      bool
 	Covariance  string
 	Workers     int
@@ -34,19 +36,47 @@ func FitOne(s SingleFit) (*fit.Result, *data.Dataset, error) {
 		return nil, nil, err
 	}
 	ds, err := data.Load(s.DataFile, data.Options{Outcome: s.Outcome, Levels: s.Levels, Predictors: s.Predictors,
-		Weights: s.Weights, Offset: s.Offset, Refuse: s.Refuse})
+		Weights: s.Weights, Offset: s.Offset, Cluster: s.Cluster, Refuse: s.Refuse})
 	if err != nil {
 		return nil, nil, err
 	}
 	if len(ds.Unobserved) > 0 {
 		return nil, ds, fmt.Errorf("%s: outcome %q: category %q is declared but never observed in the rows used; drop it or merge it with a neighbour", s.DataFile, s.Outcome, ds.Unobserved[0])
 	}
-	if s.Covariance != "" && s.Covariance != fit.CovOIM && s.Covariance != fit.CovEIM {
-		return nil, ds, fmt.Errorf("unknown covariance %q (want oim or eim)", s.Covariance)
+	cov := s.Covariance
+	switch cov {
+	case "", fit.CovOIM, fit.CovEIM, fit.CovRobust, fit.CovCluster:
+	default:
+		return nil, ds, fmt.Errorf("unknown covariance %q (want oim, eim, robust or cluster)", cov)
 	}
-	res, err := fit.Fit(FitData(ds), model, fit.Options{Covariance: s.Covariance, Workers: s.Workers})
+	if cov == fit.CovCluster && s.Cluster == "" {
+		return nil, ds, fmt.Errorf("covariance cluster needs a cluster column (--cluster COL)")
+	}
+	if s.Probability && s.Weights == "" {
+		return nil, ds, fmt.Errorf("probability weights need a weights column (--weights COL)")
+	}
+	if s.Probability && cov != fit.CovCluster {
+		cov = fit.CovRobust // pseudo-likelihood: sandwich errors
+	}
+	fopt := fit.Options{Covariance: fit.CovOIM, Workers: s.Workers}
+	if cov == fit.CovEIM {
+		fopt.Covariance = fit.CovEIM
+	}
+	d := FitData(ds)
+	res, err := fit.Fit(d, model, fopt)
 	if err != nil {
 		return nil, ds, fmt.Errorf("%s: %w", s.DataFile, err)
+	}
+	if (cov == fit.CovRobust || cov == fit.CovCluster) && res.OK() {
+		var clusters []string
+		if cov == fit.CovCluster {
+			clusters = ds.Cluster
+		}
+		V, info, err := fit.Sandwich(d, res, clusters, s.Probability)
+		if err != nil {
+			return nil, ds, err
+		}
+		res.UseCovariance(V, info.Type)
 	}
 	return res, ds, nil
 }

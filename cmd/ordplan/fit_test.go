@@ -88,6 +88,10 @@ func TestFitTableAndFailures(t *testing.T) {
 		{"ragged", []string{"fit", "--data", ragged, "--outcome", "y", "--predictors", "a"}, 1, "ragged.csv:3"},
 		{"no file", []string{"fit", "--data", filepath.Join(tmp, "none.csv"), "--outcome", "y"}, 1, "none.csv"},
 		{"unknown command", []string{"frobnicate"}, 2, "unknown command"},
+		{"robust", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89,male", "--covariance", "robust"}, 0, "sandwich (HC1"},
+		{"cluster without column", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89", "--covariance", "cluster"}, 1, "--cluster COL"},
+		{"cluster", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89,male", "--covariance", "cluster", "--cluster", "ed"}, 0, "cluster-robust"},
+		{"probability weights without weights", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89", "--weight-kind", "probability"}, 1, "need a weights column"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

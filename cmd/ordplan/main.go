@@ -103,10 +103,12 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		allFree     = fs.Bool("all-nonparallel", false, "make every predictor nonparallel")
 		constrained = fs.String("constrained", "", "predictors whose slopes vary by a common factor: a,b or name:a,b;other:c")
 		stereotype  = fs.Bool("stereotype", false, "adjacent model with every predictor in one constrained group")
-		weights     = fs.String("weights", "", "column of frequency weights")
+		weights     = fs.String("weights", "", "column of weights (frequency weights unless --weight-kind probability)")
+		weightKind  = fs.String("weight-kind", "frequency", "frequency or probability (sampling) weights; probability weights imply sandwich errors")
+		cluster     = fs.String("cluster", "", "column of cluster ids, for --covariance cluster")
 		offset      = fs.String("offset", "", "column added to x'b in every equation")
 		missing     = fs.String("missing", "drop", "rows with a missing value: drop (counted) or refuse")
-		covariance  = fs.String("covariance", "oim", "standard errors: oim (observed information) or eim (expected)")
+		covariance  = fs.String("covariance", "oim", "standard errors: oim (observed information), eim (expected), robust (sandwich HC1) or cluster (CR1)")
 		baseline    = fs.String("baseline", "", "also show an adjacent nonparallel logit as baseline-category logits against this category")
 		level       = fs.Float64("level", 0.95, "confidence level of the intervals")
 		asJSON      = fs.Bool("json", false, "print one JSON object instead of the table")
@@ -128,6 +130,10 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "ordplan fit: --missing must be drop or refuse, not %q\n", *missing)
 		return exitUsage
 	}
+	if *weightKind != "frequency" && *weightKind != "probability" {
+		fmt.Fprintf(stderr, "ordplan fit: --weight-kind must be frequency or probability, not %q\n", *weightKind)
+		return exitUsage
+	}
 	if *direction != "forward" && *direction != "backward" {
 		fmt.Fprintf(stderr, "ordplan fit: --direction must be forward or backward, not %q\n", *direction)
 		return exitUsage
@@ -135,7 +141,7 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 	s := runner.SingleFit{DataFile: *dataFile, Outcome: *outcome, Levels: runner.SplitList(*levels),
 		Predictors: runner.SplitList(*predictors), Approach: *approach, Backward: *direction == "backward",
 		Link: *link, Nonparallel: runner.SplitList(*nonparallel), Weights: *weights, Offset: *offset,
-		Refuse: *missing == "refuse", Covariance: *covariance}
+		Refuse: *missing == "refuse", Covariance: *covariance, Cluster: *cluster, Probability: *weightKind == "probability"}
 	if *allFree {
 		s.Nonparallel = s.Predictors
 	}
