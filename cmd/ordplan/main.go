@@ -112,6 +112,8 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		baseline    = fs.String("baseline", "", "also show an adjacent nonparallel logit as baseline-category logits against this category")
 		level       = fs.Float64("level", 0.95, "confidence level of the intervals")
 		asJSON      = fs.Bool("json", false, "print one JSON object instead of the table")
+		queueURL    = fs.String("queue", "", "with --partitions: the NATS JetStream server whose workers hold the partitions")
+		partitions  = fs.String("partitions", "", "fit one model over these CSV files (same columns) through --queue workers, for data too large for one machine")
 	)
 	if stop, code := parseFlags(fs, args); stop {
 		return code
@@ -120,7 +122,7 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "ordplan fit: unexpected argument %q\n", fs.Arg(0))
 		return exitUsage
 	}
-	for _, req := range []struct{ name, v string }{{"data", *dataFile}, {"outcome", *outcome}} {
+	for _, req := range []struct{ name, v string }{{"data", *dataFile + *partitions}, {"outcome", *outcome}} {
 		if req.v == "" {
 			fmt.Fprintf(stderr, "ordplan fit: --%s is required\n", req.name)
 			return exitUsage
@@ -155,6 +157,9 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 			return fail(stderr, errors.New("--stereotype puts every predictor in one constrained group: do not combine it with --constrained or --nonparallel"))
 		}
 		s.Groups = []runner.Group{{Predictors: s.Predictors}}
+	}
+	if *partitions != "" || *queueURL != "" {
+		return fitPartitioned(s, *queueURL, runner.SplitList(*partitions), *asJSON, *level, stdout, stderr)
 	}
 	res, ds, err := runner.FitOne(s)
 	if err != nil {

@@ -3,6 +3,8 @@ package main
 import (
 	"bytes"
 	"context"
+	"encoding/json"
+	"math"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -324,6 +326,63 @@ func TestQueueBadInput(t *testing.T) {
 		}
 		if c.code == exitFail && strings.Count(strings.TrimSpace(errs), "\n") != 0 {
 			t.Errorf("%v: more than one line: %q", c.args, errs)
+		}
+	}
+}
+
+// `ordplan fit --queue URL --partitions ...` fits one model over partition
+// files held by worker processes and equals the local fit of the whole
+// file to 1e-8 (General Social Survey extract, Long 1997).
+func TestFitPartitionsThroughWorkers(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts worker processes")
+	}
+	url := startQueueServer(t)
+	startWorkerProc(t, url, "p1")
+	startWorkerProc(t, url, "p2")
+	src, err := os.ReadFile(filepath.Join(refDir, "gsswarm.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(src)), "\n")
+	dir := t.TempDir()
+	var parts []string
+	for p := 0; p < 3; p++ {
+		var b strings.Builder
+		b.WriteString(lines[0] + "\n")
+		for i := 1 + p; i < len(lines); i += 3 {
+			b.WriteString(lines[i] + "\n")
+		}
+		path := filepath.Join(dir, "part"+strconv.Itoa(p)+".csv")
+		os.WriteFile(path, []byte(b.String()), 0o644)
+		parts = append(parts, path)
+	}
+	args := []string{"fit", "--outcome", "warm", "--levels", "1,2,3,4", "--predictors", "yr89,male,white,age,ed,prst", "--nonparallel", "yr89,male", "--json"}
+	local, errs, code := runCLI(append(args, "--data", filepath.Join(refDir, "gsswarm.csv"))...)
+	if code != 0 {
+		t.Fatal(errs)
+	}
+	dist, errs, code := runCLI(append(args, "--queue", url, "--partitions", strings.Join(parts, ","))...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var a, b struct {
+		LogLik    float64            `json:"loglik"`
+		Estimates map[string]float64 `json:"estimates"`
+		StdErrors map[string]float64 `json:"std_errors"`
+	}
+	if err := json.Unmarshal([]byte(local), &a); err != nil {
+		t.Fatal(err)
+	}
+	if err := json.Unmarshal([]byte(dist), &b); err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(a.LogLik-b.LogLik) > 1e-8 || len(a.Estimates) != len(b.Estimates) {
+		t.Fatalf("loglik %v vs %v", a.LogLik, b.LogLik)
+	}
+	for n, v := range a.Estimates {
+		if math.Abs(v-b.Estimates[n]) > 1e-8 || math.Abs(a.StdErrors[n]-b.StdErrors[n]) > 1e-8 {
+			t.Errorf("%s: %v (%v) vs %v (%v)", n, v, a.StdErrors[n], b.Estimates[n], b.StdErrors[n])
 		}
 	}
 }

@@ -1,0 +1,71 @@
+package main
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"os/signal"
+	"syscall"
+
+	"ordplan/data"
+	"ordplan/render"
+	"ordplan/runner"
+	"ordplan/runner/fit"
+	"ordplan/runner/queue"
+)
+
+// fitPartitioned fits one model over partition files through queue
+// workers: each Newton evaluation is summed over the partitions.
+func fitPartitioned(s runner.SingleFit, url string, parts []string, asJSON bool, level float64, stdout, stderr io.Writer) int {
+	switch {
+	case url == "":
+		return fail(stderr, errors.New("--partitions needs --queue nats://HOST:PORT"))
+	case len(parts) == 0:
+		return fail(stderr, errors.New("--queue with ordplan fit needs --partitions a.csv,b.csv,..."))
+	case s.Covariance != "" && s.Covariance != fit.CovOIM:
+		return fail(stderr, errors.New("partitioned fits give observed-information standard errors only"))
+	case s.Probability || s.Cluster != "":
+		return fail(stderr, errors.New("partitioned fits take frequency weights only, without clusters"))
+	}
+	spec := runner.Spec{Approach: s.Approach, Backward: s.Backward, Link: s.Link, Predictors: s.Predictors, Nonparallel: s.Nonparallel, Groups: s.Groups}
+	m, err := spec.Model()
+	if err != nil {
+		return fail(stderr, err)
+	}
+	dopt := data.Options{Outcome: s.Outcome, Levels: s.Levels, Predictors: s.Predictors, Weights: s.Weights, Offset: s.Offset, Refuse: s.Refuse}
+	whole, refs, read, err := queue.PartitionFiles(parts, dopt)
+	if err != nil {
+		return fail(stderr, err)
+	}
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	defer stop()
+	c, err := queue.Connect(ctx, url, "ordplan fit")
+	if err != nil {
+		return fail(stderr, err)
+	}
+	defer c.Close()
+	res, err := queue.FitPartitioned(ctx, c, refs, whole, m, queue.PartitionOptions{Data: dopt})
+	if err != nil {
+		return fail(stderr, err)
+	}
+	if asJSON {
+		enc := json.NewEncoder(stdout)
+		enc.SetIndent("", "  ")
+		if err := enc.Encode(runner.Record(res)); err != nil {
+			return fail(stderr, err)
+		}
+	} else {
+		sum := render.DataSummary{File: fmt.Sprintf("%d partitions", len(parts)), Outcome: s.Outcome, RowsRead: read, RowsUsed: whole.Rows,
+			DropSummary: fmt.Sprintf("%d rows dropped for missing values or zero weight", read-whole.Rows)}
+		if err := render.FitTable(stdout, res, sum, level); err != nil {
+			return fail(stderr, err)
+		}
+	}
+	if !res.OK() {
+		return exitFail
+	}
+	return exitOK
+}
