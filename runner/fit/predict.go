@@ -212,6 +212,28 @@ func (r *Result) Predict(X []float64, offset []float64) (*Prediction, error) {
 	return out, nil
 }
 
+// centralJacobian returns the Jacobian (len(f) x len(theta), row-major) of
+// f at theta by central differences with steps 1e-6 max(1, |theta_a|).
+func centralJacobian(f func([]float64) []float64, theta []float64) []float64 {
+	P := len(theta)
+	var jac []float64
+	for a := 0; a < P; a++ {
+		h := 1e-6 * math.Max(1, math.Abs(theta[a]))
+		tp := append([]float64(nil), theta...)
+		tm := append([]float64(nil), theta...)
+		tp[a] += h
+		tm[a] -= h
+		fp, fm := f(tp), f(tm)
+		if jac == nil {
+			jac = make([]float64, len(fp)*P)
+		}
+		for j := range fp {
+			jac[j*P+a] = (fp[j] - fm[j]) / (2 * h)
+		}
+	}
+	return jac
+}
+
 func quadForm(g, V []float64) float64 {
 	P := len(g)
 	s := 0.0
@@ -341,18 +363,7 @@ func (r *Result) marginalEffects(d *Data, binaryOf []bool, level float64) ([]Mar
 		ame, jac := eff(r.Estimates)
 		if !binary {
 			// Jacobian of the derivative effect by central differences.
-			for a := 0; a < P; a++ {
-				h := 1e-6 * math.Max(1, math.Abs(r.Estimates[a]))
-				tp := append([]float64(nil), r.Estimates...)
-				tm := append([]float64(nil), r.Estimates...)
-				tp[a] += h
-				tm[a] -= h
-				ep, _ := eff(tp)
-				em, _ := eff(tm)
-				for j := 0; j < J; j++ {
-					jac[j*P+a] = (ep[j] - em[j]) / (2 * h)
-				}
-			}
+			jac = centralJacobian(func(th []float64) []float64 { e, _ := eff(th); return e }, r.Estimates)
 		}
 		for j := 0; j < J; j++ {
 			se := math.Sqrt(quadForm(jac[j*P:(j+1)*P], r.Cov))

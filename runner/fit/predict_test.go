@@ -34,20 +34,13 @@ func TestPredictionsAndMarginalEffects(t *testing.T) {
 		pr, _ := r.problem()
 		x := d.X[:K]
 		P := len(r.Estimates)
+		jac := centralJacobian(func(th []float64) []float64 {
+			p := make([]float64, r.J)
+			pr.probsAt(th, x, 0, p)
+			return p
+		}, r.Estimates)
 		for j := 0; j < r.J; j++ {
-			g := make([]float64, P)
-			for a := 0; a < P; a++ {
-				h := 1e-6 * math.Max(1, math.Abs(r.Estimates[a]))
-				tp := append([]float64(nil), r.Estimates...)
-				tm := append([]float64(nil), r.Estimates...)
-				tp[a] += h
-				tm[a] -= h
-				pp, pm := make([]float64, r.J), make([]float64, r.J)
-				pr.probsAt(tp, x, 0, pp)
-				pr.probsAt(tm, x, 0, pm)
-				g[a] = (pp[j] - pm[j]) / (2 * h)
-			}
-			se := math.Sqrt(quadForm(g, r.Cov))
+			se := math.Sqrt(quadForm(jac[j*P:(j+1)*P], r.Cov))
 			if !near(pred.SE[j], se, 1e-5, 1e-9) {
 				t.Errorf("%s: se of P(%d) %v, numerical %v", r.Name, j, pred.SE[j], se)
 			}
@@ -126,26 +119,12 @@ func TestPredictionSummaries(t *testing.T) {
 	}
 	got = append(got, pred.Expected[0])
 	gotSE = append(gotSE, pred.ExpectedSE[0])
-	jac := make([][]float64, len(base))
-	for i := range jac {
-		jac[i] = make([]float64, P)
-	}
-	for a := 0; a < P; a++ {
-		h := 1e-6 * math.Max(1, math.Abs(r.Estimates[a]))
-		tp := append([]float64(nil), r.Estimates...)
-		tm := append([]float64(nil), r.Estimates...)
-		tp[a] += h
-		tm[a] -= h
-		sp, sm := summary(tp), summary(tm)
-		for i := range base {
-			jac[i][a] = (sp[i] - sm[i]) / (2 * h)
-		}
-	}
+	jac := centralJacobian(summary, r.Estimates)
 	for i := range base {
 		if !near(got[i], base[i], 1e-12, 1e-12) {
 			t.Errorf("summary %d: %v vs %v", i, got[i], base[i])
 		}
-		if se := math.Sqrt(quadForm(jac[i], r.Cov)); !near(gotSE[i], se, 1e-5, 1e-9) {
+		if se := math.Sqrt(quadForm(jac[i*P:(i+1)*P], r.Cov)); !near(gotSE[i], se, 1e-5, 1e-9) {
 			t.Errorf("summary %d se: %v vs numerical %v", i, gotSE[i], se)
 		}
 	}

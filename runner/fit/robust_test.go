@@ -43,15 +43,7 @@ func TestSandwichAgainstHandComputation(t *testing.T) {
 	Bhc := make([]float64, P*P)
 	sums := map[string][]float64{}
 	for i := 0; i < d.N(); i++ {
-		s := make([]float64, P)
-		for a := 0; a < P; a++ {
-			h := 1e-6 * math.Max(1, math.Abs(r.Estimates[a]))
-			tp := append([]float64(nil), r.Estimates...)
-			tm := append([]float64(nil), r.Estimates...)
-			tp[a] += h
-			tm[a] -= h
-			s[a] = (rowLL(i, tp) - rowLL(i, tm)) / (2 * h)
-		}
+		s := centralJacobian(func(th []float64) []float64 { return []float64{rowLL(i, th)} }, r.Estimates)
 		addOuter(Bhc, s, 1)
 		if sums[clusters[i]] == nil {
 			sums[clusters[i]] = make([]float64, P)
