@@ -205,7 +205,7 @@ func TestBadPlans(t *testing.T) {
 		{"alpha not finite", "", "tests: {alpha: .nan}\n",
 			[]string{`tests.alpha: want a finite number, got .nan`}},
 		{"unknown covariance", "", "covariance: sandwich\n",
-			[]string{`bad.yaml:12:13: covariance: unknown covariance "sandwich" (want oim, eim, robust or cluster)`}},
+			[]string{`bad.yaml:12:13: covariance: unknown covariance "sandwich" (want oim, eim, robust, robust_hc0 or cluster)`}},
 		{"cluster covariance without cluster", "", "covariance: cluster\n",
 			[]string{`bad.yaml:12:13: covariance: cluster covariance needs a cluster column, and data.cluster is not set`}},
 		{"cluster column without cluster covariance", "  file: d.csv\n", "  file: d.csv\n  cluster: street\n",

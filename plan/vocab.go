@@ -11,7 +11,7 @@ var (
 	parallelTestWords = []string{"brant", "lr", "score", "wald", "wolfe_gould"}
 	ruleTestWords     = []string{"lr", "wald", "score", "brant"}
 	criterionWords    = []string{"aic", "bic"}
-	covarianceWords   = []string{"oim", "eim", "robust", "cluster"}
+	covarianceWords   = []string{"oim", "eim", "robust", "robust_hc0", "cluster"}
 	missingWords      = []string{"drop", "refuse"}
 	weightKindWords   = []string{"frequency", "probability"}
 	selectMethodWords = []string{"stepwise"}

@@ -95,6 +95,8 @@ func covName(c string) string {
 		return "observed information"
 	case fit.CovRobust:
 		return "sandwich (HC1: times N/(N-P))"
+	case fit.CovRobustHC0:
+		return "sandwich (HC0: no small-sample factor)"
 	case fit.CovCluster:
 		return "cluster-robust sandwich (CR1: times G/(G-1) (N-1)/(N-P))"
 	}

@@ -54,7 +54,7 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 // silently ignoring them.
 func supported(p *plan.Plan) error {
 	switch p.Covariance {
-	case "", "oim", "eim", "robust", "cluster":
+	case "", "oim", "eim", "robust", "robust_hc0", "cluster":
 	default:
 		return fmt.Errorf("%s: covariance: unknown type %q (want oim, eim, robust or cluster)", p.Path, p.Covariance)
 	}
@@ -69,7 +69,9 @@ func covarianceName(c string) string {
 	case "eim":
 		return "expected information (Fisher scoring form)"
 	case "robust":
-		return "sandwich estimator A^-1 B A^-1 (A the observed information, B the outer product of the row scores), times N/(N-P)"
+		return "sandwich estimator A^-1 B A^-1 (A the observed information, B the outer product of the row scores), times N/(N-P) (HC1)"
+	case "robust_hc0":
+		return "sandwich estimator A^-1 B A^-1 (A the observed information, B the outer product of the row scores), without a small-sample factor (HC0)"
 	case "cluster":
 		return "cluster-robust sandwich estimator (scores summed within clusters), times G/(G-1) (N-1)/(N-P) with G clusters"
 	}
@@ -85,7 +87,7 @@ func probabilityWeights(p *plan.Plan) bool {
 // covarianceOf is the covariance a plan's fits use: probability weights
 // imply the sandwich.
 func covarianceOf(p *plan.Plan) string {
-	if probabilityWeights(p) && p.Covariance != "cluster" {
+	if probabilityWeights(p) && p.Covariance != "cluster" && p.Covariance != "robust_hc0" {
 		return "robust"
 	}
 	return p.Covariance
@@ -331,7 +333,7 @@ func runJobs(jobs []*FitEntry, d *fit.Data, fopt fit.Options, opt Options, outco
 // sandwich, or nil when the plan uses model-based errors.
 func sandwichFor(p *plan.Plan, ds *data.Dataset) func(*fit.Result) error {
 	cov := covarianceOf(p)
-	if cov != "robust" && cov != "cluster" {
+	if cov != "robust" && cov != "robust_hc0" && cov != "cluster" {
 		return nil
 	}
 	d := FitData(ds)
@@ -341,7 +343,11 @@ func sandwichFor(p *plan.Plan, ds *data.Dataset) func(*fit.Result) error {
 	}
 	prob := probabilityWeights(p)
 	return func(r *fit.Result) error {
-		V, info, err := fit.Sandwich(d, r, clusters, prob)
+		sw := fit.Sandwich
+		if cov == "robust_hc0" {
+			sw = fit.SandwichHC0
+		}
+		V, info, err := sw(d, r, clusters, prob)
 		if err != nil {
 			return fmt.Errorf("%s: sandwich covariance: %w", r.Name, err)
 		}

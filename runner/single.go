@@ -45,9 +45,9 @@ func FitOne(s SingleFit) (*fit.Result, *data.Dataset, error) {
 	}
 	cov := s.Covariance
 	switch cov {
-	case "", fit.CovOIM, fit.CovEIM, fit.CovRobust, fit.CovCluster:
+	case "", fit.CovOIM, fit.CovEIM, fit.CovRobust, fit.CovRobustHC0, fit.CovCluster:
 	default:
-		return nil, ds, fmt.Errorf("unknown covariance %q (want oim, eim, robust or cluster)", cov)
+		return nil, ds, fmt.Errorf("unknown covariance %q (want oim, eim, robust, robust_hc0 or cluster)", cov)
 	}
 	if cov == fit.CovCluster && s.Cluster == "" {
 		return nil, ds, fmt.Errorf("covariance cluster needs a cluster column (--cluster COL)")
@@ -55,7 +55,7 @@ func FitOne(s SingleFit) (*fit.Result, *data.Dataset, error) {
 	if s.Probability && s.Weights == "" {
 		return nil, ds, fmt.Errorf("probability weights need a weights column (--weights COL)")
 	}
-	if s.Probability && cov != fit.CovCluster {
+	if s.Probability && cov != fit.CovCluster && cov != fit.CovRobustHC0 {
 		cov = fit.CovRobust // pseudo-likelihood: sandwich errors
 	}
 	fopt := fit.Options{Covariance: fit.CovOIM, Workers: s.Workers}
@@ -67,12 +67,16 @@ func FitOne(s SingleFit) (*fit.Result, *data.Dataset, error) {
 	if err != nil {
 		return nil, ds, fmt.Errorf("%s: %w", s.DataFile, err)
 	}
-	if (cov == fit.CovRobust || cov == fit.CovCluster) && res.OK() {
+	if (cov == fit.CovRobust || cov == fit.CovRobustHC0 || cov == fit.CovCluster) && res.OK() {
 		var clusters []string
 		if cov == fit.CovCluster {
 			clusters = ds.Cluster
 		}
-		V, info, err := fit.Sandwich(d, res, clusters, s.Probability)
+		sw := fit.Sandwich
+		if cov == fit.CovRobustHC0 {
+			sw = fit.SandwichHC0
+		}
+		V, info, err := sw(d, res, clusters, s.Probability)
 		if err != nil {
 			return nil, ds, err
 		}

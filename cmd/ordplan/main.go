@@ -108,7 +108,7 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		cluster     = fs.String("cluster", "", "column of cluster ids, for --covariance cluster")
 		offset      = fs.String("offset", "", "column added to x'b in every equation")
 		missing     = fs.String("missing", "drop", "rows with a missing value: drop (counted) or refuse")
-		covariance  = fs.String("covariance", "oim", "standard errors: oim (observed information), eim (expected), robust (sandwich HC1) or cluster (CR1)")
+		covariance  = fs.String("covariance", "oim", "standard errors: oim (observed information), eim (expected), robust (sandwich HC1), robust_hc0 (HC0) or cluster (CR1)")
 		baseline    = fs.String("baseline", "", "also show an adjacent nonparallel logit as baseline-category logits against this category")
 		level       = fs.Float64("level", 0.95, "confidence level of the intervals")
 		asJSON      = fs.Bool("json", false, "print one JSON object instead of the table")

@@ -8,8 +8,9 @@ import (
 
 // Sandwich covariance types.
 const (
-	CovRobust  = "robust"  // heteroskedasticity-consistent (HC1)
-	CovCluster = "cluster" // cluster-robust (CR1)
+	CovRobust    = "robust"     // heteroskedasticity-consistent, with the factor N/(N-P) (HC1)
+	CovRobustHC0 = "robust_hc0" // the same without the factor (HC0)
+	CovCluster   = "cluster"    // cluster-robust (CR1)
 )
 
 // SandwichInfo describes how a sandwich covariance was computed.
@@ -72,6 +73,16 @@ func (p *problem) rowScores(theta []float64, fn func(i int, s []float64)) error 
 // usual estimators of White (1980) and Liang & Zeger (1986) with their
 // customary small-sample factors.
 func Sandwich(d *Data, r *Result, clusters []string, probability bool) ([]float64, SandwichInfo, error) {
+	return sandwich(d, r, clusters, probability, true)
+}
+
+// SandwichHC0 is Sandwich without a small-sample factor (HC0 and its
+// cluster analogue).
+func SandwichHC0(d *Data, r *Result, clusters []string, probability bool) ([]float64, SandwichInfo, error) {
+	return sandwich(d, r, clusters, probability, false)
+}
+
+func sandwich(d *Data, r *Result, clusters []string, probability, factor bool) ([]float64, SandwichInfo, error) {
 	info := SandwichInfo{Type: CovRobust}
 	if !r.OK() {
 		return nil, info, fmt.Errorf("%s has no usable estimates", r.Name)
@@ -154,6 +165,13 @@ func Sandwich(d *Data, r *Result, clusters []string, probability bool) ([]float6
 	default:
 		info.Factor = N / (N - float64(P))
 		info.Formula = "A^-1 B A^-1, B = sum over rows of the outer products of the scores, times N/(N-P)"
+	}
+	if !factor {
+		info.Factor = 1
+		info.Formula = "A^-1 B A^-1 without a small-sample factor"
+		if info.Type == CovRobust {
+			info.Type = CovRobustHC0
+		}
 	}
 	V := sandwichProduct(Ainv, B, P)
 	for i := range V {

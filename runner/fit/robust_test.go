@@ -101,3 +101,19 @@ func TestSandwichFrequencyWeights(t *testing.T) {
 		}
 	}
 }
+
+// HC0 is HC1 without its factor N/(N-P).
+func TestSandwichHC0(t *testing.T) {
+	d := gssData(t) // General Social Survey 1977/1989 extract, Long (1997)
+	r := fitOK(t, d, Model{Comparison: Adjacent, Link: Logit, Effects: allEffects(6, Parallel)})
+	hc1, i1, _ := Sandwich(d, r, nil, false)
+	hc0, i0, err := SandwichHC0(d, r, nil, false)
+	if err != nil || i0.Type != CovRobustHC0 || i0.Factor != 1 {
+		t.Fatalf("%v %+v", err, i0)
+	}
+	for k := range hc0 {
+		if !near(hc0[k]*i1.Factor, hc1[k], 1e-12, 1e-15) {
+			t.Fatalf("entry %d: %v vs %v", k, hc0[k]*i1.Factor, hc1[k])
+		}
+	}
+}
