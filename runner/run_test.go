@@ -200,3 +200,58 @@ func TestRerunIsByteIdentical(t *testing.T) {
 		t.Fatal("decisions differ between runs")
 	}
 }
+
+// A plan with two outcomes fits and decides each one apart; the decisions
+// name both and a rerun gives the same bytes.
+func TestRunTwoOutcomes(t *testing.T) {
+	dir := t.TempDir()
+	src, err := os.ReadFile(filepath.Join("..", "..", "shared", "reference", "gsswarm.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(src)), "\n")
+	var b strings.Builder
+	b.WriteString(lines[0] + ",warm3\n")
+	for _, l := range lines[1:] {
+		w := l[:1] // warm is the first column, one digit
+		w3 := map[string]string{"1": "low", "2": "low", "3": "mid", "4": "high"}[w]
+		b.WriteString(l + "," + w3 + "\n")
+	}
+	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
+	plan := `version: 1
+title: two outcomes
+data: {file: d.csv}
+outcomes:
+  - {column: warm}
+  - {column: warm3, categories: [low, mid, high]}
+predictors: [yr89, male, age]
+models: {approaches: [cumulative, adjacent], levels: [parallel, nonparallel]}
+tests: {parallel_lines: [lr]}
+rules:
+  - reject_if_test_rejects: {test: lr}
+  - choose: {by: bic}
+`
+	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(plan), 0o644)
+	p := loadPlanFile(t, filepath.Join(dir, "p.yaml"))
+	a, _ := MarshalStable(BuildDecisions(runPlan(t, p, 1)))
+	r := runPlan(t, p, 2)
+	c, _ := MarshalStable(BuildDecisions(r))
+	if !bytes.Equal(a, c) {
+		t.Fatal("decisions differ between runs")
+	}
+	if len(r.Outcomes) != 2 || r.Outcomes[1].Data.Levels[2] != "high" || r.Outcomes[0].Chosen == nil || r.Outcomes[1].Chosen == nil {
+		t.Fatalf("outcomes %d", len(r.Outcomes))
+	}
+	if r.Outcomes[1].Find("cumulative/parallel/logit").Result.J != 3 {
+		t.Fatal("second outcome should have 3 categories")
+	}
+}
+
+func loadPlanFile(t *testing.T, path string) *plan.Plan {
+	t.Helper()
+	p, err := plan.Load(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return p
+}

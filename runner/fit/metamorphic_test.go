@@ -156,3 +156,37 @@ func TestTwoCategoriesGiveBinaryModel(t *testing.T) {
 		}
 	}
 }
+
+// The backward stage logit on y is the forward stage logit on the reversed
+// categories with cutpoints and slopes negated and the equations reversed
+// (the logit is symmetric).
+func TestBackwardStageIsReversedForward(t *testing.T) {
+	d := gssData(t)
+	r := &Data{J: d.J, Predictors: d.Predictors, X: d.X}
+	for _, y := range d.Y {
+		r.Y = append(r.Y, d.J-1-y)
+	}
+	eff := []Effect{Nonparallel, Parallel, Parallel, Parallel, Parallel, Parallel}
+	b := fitOK(t, d, Model{Comparison: Stage, Backward: true, Link: Logit, Effects: eff})
+	f := fitOK(t, r, Model{Comparison: Stage, Link: Logit, Effects: eff})
+	if math.Abs(b.LogLik-f.LogLik) > 1e-8 {
+		t.Fatalf("loglik %v vs %v", b.LogLik, f.LogLik)
+	}
+	q := d.J - 1
+	for j := 0; j < q; j++ {
+		if !near(b.Cutpoints[j], -f.Cutpoints[q-1-j], 1e-7, 1e-9) {
+			t.Errorf("cut%d %v vs %v", j+1, b.Cutpoints[j], -f.Cutpoints[q-1-j])
+		}
+		for k := range d.Predictors {
+			if !near(b.Effects[j][k], -f.Effects[q-1-j][k], 1e-7, 1e-9) {
+				t.Errorf("%s eq %d: %v vs %v", d.Predictors[k], j+1, b.Effects[j][k], -f.Effects[q-1-j][k])
+			}
+		}
+	}
+	// With an asymmetric link the two are different models.
+	bc := fitOK(t, d, Model{Comparison: Stage, Backward: true, Link: Cloglog, Effects: eff})
+	fc := fitOK(t, r, Model{Comparison: Stage, Link: Cloglog, Effects: eff})
+	if math.Abs(bc.LogLik-fc.LogLik) < 1e-6 {
+		t.Errorf("cloglog backward and reversed forward should differ: %v %v", bc.LogLik, fc.LogLik)
+	}
+}
