@@ -2,10 +2,12 @@ package render
 
 import (
 	"fmt"
+	"math"
 	"strings"
 
 	"ordplan/numfmt"
 	"ordplan/runner"
+	"ordplan/runner/fit"
 )
 
 // writeOutcome writes everything about one outcome, in the order a
@@ -107,7 +109,7 @@ func modelRow(f *runner.FitEntry) []string {
 		return []string{id, "not fitted: " + f.Err, "", "", "", "", "", f.Verdict}
 	}
 	res := f.Result
-	if !res.OK() {
+	if !res.OK() && !(res.Status == fit.StatusNotIdentified && !math.IsNaN(res.LogLik)) {
 		return []string{id, string(res.Status), "no finite value", fmt.Sprint(res.NParams), "", "", "", f.Verdict}
 	}
 	return []string{id, string(res.Status), numfmt.Fixed(res.LogLik, 3), fmt.Sprint(res.NParams), numfmt.Fixed(res.AIC, 2), numfmt.Fixed(res.BIC, 2), fmt.Sprint(res.NegativeRows), f.Verdict}
