@@ -596,3 +596,21 @@ func TestTwoConstraintGroups(t *testing.T) {
 	}
 	checkStarts(t, r2)
 }
+
+// A data set (6000 rows, fixed seed) whose constrained stage maximum lies
+// beyond b_1 = 0 from the rank-1 start: that start climbs the ridge
+// g -> 0, |phi| -> inf, which the normalization phi_1 = 1 cannot cross.
+// The search stops it and refits in another normalization, reaching the
+// maximum that eight full Newton runs from random starts reach
+// (-6834.3688899825).
+func TestConstrainedMaximumBeyondTheRidge(t *testing.T) {
+	d := synthData(1, 6000, 3, 5, false, false)
+	m := Model{Comparison: Stage, Link: Logit, Effects: []Effect{Constrained, Constrained, Parallel}}
+	r, err := Fit(d, m, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !r.OK() || r.LogLik < -6834.3688899825-1e-6 {
+		t.Fatalf("status %s, loglik %.10f: %s", r.Status, r.LogLik, r.Message)
+	}
+}

@@ -200,7 +200,8 @@ func ridgeRefs(res *Result, ly *layout, st *newtonState, sd []float64) []int {
 		// normalizedFit keeps the standard result when that refit shows
 		// phi_1 is merely small, and reports non-identification only when
 		// the equation-1 slopes vanish.
-		if gs*pm >= phiZeroEffect && pm > phiLarge {
+		irregular := !st.converged || !res.OK()
+		if gs*pm >= phiZeroEffect && (pm > phiLarge || (pm > phiRidge && irregular)) {
 			found = true
 		} else {
 			ref = 0
@@ -367,6 +368,28 @@ func (r rankMap) newton(pp *problem, th0 []float64, maxIter int) newtonState {
 	})
 }
 
+// phiRidge: a best start that did not converge with |phi| above this is
+// refitted with the largest equation as reference too: it may be climbing
+// the ridge g -> 0, |phi| -> inf towards a maximum that lies on the other
+// side of b_1 = 0, which the normalization phi_1 = 1 cannot cross.
+const phiRidge = 10
+
+// reasonRidge: a start stopped while phi grew along the ridge g -> 0.
+const reasonRidge = "climbing the ridge where g tends to 0 and |phi| grows"
+
+// maxPhi is the largest |phi| of any group at theta.
+func (p *problem) maxPhi(theta []float64) float64 {
+	mx := 0.0
+	for _, g := range p.ly.phiIndex {
+		for _, i := range g {
+			if i >= 0 {
+				mx = math.Max(mx, math.Abs(theta[i]))
+			}
+		}
+	}
+	return mx
+}
+
 // reasonFlat: Newton stopped at a stationary point where the information
 // is singular (a flat direction, such as phi when gamma = 0).
 const reasonFlat = "the log-likelihood is flat (singular information)"
@@ -377,8 +400,13 @@ const reasonFlat = "the log-likelihood is flat (singular information)"
 // (when not nil).
 func (p *problem) runStart(theta, anchor []float64, opt Options, best float64) newtonState {
 	prev := math.NaN()
-	stop := func(it int, ll, dec float64, pd bool) string {
+	stop := func(it int, th []float64, ll, dec float64, pd bool) string {
 		defer func() { prev = ll }()
+		// Climbing the ridge g -> 0, |phi| -> inf: the normalization phi_1
+		// = 1 cannot reach what lies beyond; ridgeRefs refits in another.
+		if it >= 10 && !math.IsNaN(prev) && ll-prev < 1e-4 && p.maxPhi(th) > phiRidge {
+			return reasonRidge
+		}
 		if it >= 3 && !pd && dec <= 1e-10*math.Max(1, math.Abs(ll)) {
 			return reasonFlat
 		}

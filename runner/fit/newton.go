@@ -64,10 +64,10 @@ func newtonLoop(theta0 []float64, maxIter int, ev evalFunc) newtonState {
 }
 
 // stopFunc may end a Newton run early: called once per iteration that has
-// not converged, with the iteration, log-likelihood, Newton decrement and
-// whether the information was positive definite; a non-empty answer stops
+// not converged, with the iteration, parameters, log-likelihood, Newton
+// decrement and whether the information was positive definite; a non-empty answer stops
 // the run with that reason.
-type stopFunc func(it int, ll, dec float64, pd bool) string
+type stopFunc func(it int, theta []float64, ll, dec float64, pd bool) string
 
 // newtonLoopStop is newtonLoop with an optional early stop.
 func newtonLoopStop(theta0 []float64, maxIter int, ev evalFunc, stop stopFunc) newtonState {
@@ -101,7 +101,7 @@ func newtonLoopStop(theta0 []float64, maxIter int, ev evalFunc, stop stopFunc) n
 		}
 		prevSmall = pd && dec <= 1e-6*scale
 		if stop != nil {
-			if why := stop(it, ll, dec, pd); why != "" {
+			if why := stop(it, theta, ll, dec, pd); why != "" {
 				st.reason = why
 				return st
 			}
