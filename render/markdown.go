@@ -16,6 +16,9 @@ func build(r *runner.Result, dec *runner.Decisions, changes []string) *doc {
 	d.h(1, reportTitle(r))
 	d.p("This report was written by ordplan %s from the plan `%s` (sha256 `%s`) and the data file `%s` (sha256 `%s`). The plan fixed the candidate models and the decision rules before the models were fitted; the same plan and data give this report byte for byte.",
 		r.Version, dec.Plan.File, p.Hash, p.Data.File, r.DataHash)
+	if r.Started != "" {
+		d.p("Run started at %s (the plan asks for a timestamp, so reruns differ in this line and in run.json).", r.Started)
+	}
 	if len(changes) > 0 {
 		d.h(2, "Changes since the previous run")
 		d.list(changes)

@@ -177,3 +177,17 @@ func TestHTMLIsSelfContained(t *testing.T) {
 		}
 	}
 }
+
+// With report.timestamp the report and run.json carry the same start time;
+// without it neither has one.
+func TestTimestampOnlyWhenAsked(t *testing.T) {
+	r := &runner.Result{Plan: &plan.Plan{Path: "p.yaml", Title: "t"}, Version: "x", Started: "2026-12-02T04:00:00Z"}
+	d := build(r, runner.BuildDecisions(r), nil)
+	if !strings.Contains(string(d.markdown()), "Run started at 2026-12-02T04:00:00Z") {
+		t.Fatal("timestamp missing from the report")
+	}
+	r.Started = ""
+	if strings.Contains(string(build(r, runner.BuildDecisions(r), nil).markdown()), "Run started") {
+		t.Fatal("timestamp without being asked")
+	}
+}

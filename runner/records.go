@@ -9,7 +9,6 @@ import (
 	"os"
 	"path/filepath"
 	"sort"
-	"time"
 
 	"ordplan/data"
 	"ordplan/runner/fit"
@@ -198,9 +197,7 @@ func WriteFiles(r *Result, dir string, files map[string][]byte) error {
 	rec := RunRecord{Program: "ordplan", Version: r.Version,
 		Plan: PlanRef{File: filepath.Base(r.Plan.Path), Title: r.Plan.Title, SHA256: r.Plan.Hash},
 		Data: DataRef{File: r.Plan.Data.File, SHA256: r.DataHash}, Seed: r.Plan.Seed, Outputs: map[string]string{}}
-	if r.Plan.Report.Timestamp {
-		rec.Timestamp = time.Now().UTC().Format(time.RFC3339)
-	}
+	rec.Timestamp = r.Started
 	names := make([]string, 0, len(files))
 	for n := range files {
 		names = append(names, n)

@@ -9,6 +9,7 @@ import (
 	"runtime"
 	"slices"
 	"sync"
+	"time"
 
 	"ordplan/data"
 	"ordplan/plan"
@@ -36,6 +37,9 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 	}
 	sum := sha256.Sum256(raw)
 	res := &Result{Plan: p, DataHash: hex.EncodeToString(sum[:]), Version: Version}
+	if p.Report.Timestamp {
+		res.Started = time.Now().UTC().Format(time.RFC3339)
+	}
 	res.Notes = append(res.Notes, fmt.Sprintf("Standard errors from the %s.", covarianceName(covarianceOf(p))))
 	if probabilityWeights(p) {
 		res.Notes = append(res.Notes, "The weights are probability (sampling) weights: the fits maximize a pseudo-likelihood, standard errors are sandwich estimates, likelihood-ratio, score and Brant tests are not valid and are replaced by Wald tests, and AIC/BIC are descriptive only.")

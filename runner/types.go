@@ -13,6 +13,7 @@ type Result struct {
 	Version  string
 	Outcomes []*OutcomeResult
 	Notes    []string // run-level remarks (covariance, weights)
+	Started  string   // UTC start time, only when the plan asks for timestamps
 }
 
 // OutcomeResult holds the fits, tests and decisions of one outcome.
