@@ -1,15 +1,12 @@
 package main
 
 import (
-	"bytes"
 	"context"
 	"errors"
 	"fmt"
 	"os"
 	"os/exec"
 	"path/filepath"
-	"strings"
-	"sync"
 	"syscall"
 	"time"
 
@@ -18,24 +15,6 @@ import (
 	"ordplan/runner/queue"
 	"ordplan/runner/queue/localserver"
 )
-
-// logBuffer collects the workers' logs.
-type logBuffer struct {
-	mu sync.Mutex
-	b  bytes.Buffer
-}
-
-func (l *logBuffer) Write(p []byte) (int, error) {
-	l.mu.Lock()
-	defer l.mu.Unlock()
-	return l.b.Write(p)
-}
-
-func (l *logBuffer) count(s string) int {
-	l.mu.Lock()
-	defer l.mu.Unlock()
-	return strings.Count(l.b.String(), s)
-}
 
 // queueRun runs the plan through a fresh server and n fresh worker
 // processes; the clock runs from the plan run's start to its end.
@@ -61,7 +40,7 @@ func queueRun(p *plan.Plan, bin, tmp string, n int, ref map[string][]byte) (samp
 		return sample{}, err
 	}
 	defer c.Close()
-	logs := &logBuffer{}
+	logs := &queue.LogBuffer{}
 	var procs []*exec.Cmd
 	for i := range n {
 		cmd := exec.Command(bin, "worker", "--queue", url, "--jobs", "1", "--name", fmt.Sprintf("w%d", i+1),
@@ -74,7 +53,7 @@ func queueRun(p *plan.Plan, bin, tmp string, n int, ref map[string][]byte) (samp
 	}
 	defer func() { stopAll(procs) }()
 	deadline := time.Now().Add(30 * time.Second)
-	for logs.count("ready") < n {
+	for logs.Count("ready") < n {
 		if time.Now().After(deadline) {
 			return sample{}, errors.New("the workers did not start within 30 s")
 		}

@@ -65,24 +65,6 @@ type buildError struct {
 
 func (e *buildError) Error() string { return "go build: " + e.err.Error() + ": " + e.out }
 
-// lockedBuffer collects a process's output for the test to read.
-type lockedBuffer struct {
-	mu sync.Mutex
-	b  bytes.Buffer
-}
-
-func (l *lockedBuffer) Write(p []byte) (int, error) {
-	l.mu.Lock()
-	defer l.mu.Unlock()
-	return l.b.Write(p)
-}
-
-func (l *lockedBuffer) String() string {
-	l.mu.Lock()
-	defer l.mu.Unlock()
-	return l.b.String()
-}
-
 // startQueueServer runs a JetStream server on loopback for the test.
 func startQueueServer(t *testing.T) string {
 	t.Helper()
@@ -100,13 +82,13 @@ func startQueueServer(t *testing.T) string {
 // proc is a child process of the test with its stderr collected.
 type proc struct {
 	cmd    *exec.Cmd
-	stderr *lockedBuffer
+	stderr *queue.LogBuffer
 	done   chan struct{}
 }
 
 func startProc(t *testing.T, env []string, args ...string) *proc {
 	t.Helper()
-	p := &proc{cmd: exec.Command(ordplanBinary(t), args...), stderr: &lockedBuffer{}, done: make(chan struct{})}
+	p := &proc{cmd: exec.Command(ordplanBinary(t), args...), stderr: &queue.LogBuffer{}, done: make(chan struct{})}
 	p.cmd.Env = append(os.Environ(), env...)
 	p.cmd.Stderr = p.stderr
 	if err := p.cmd.Start(); err != nil {

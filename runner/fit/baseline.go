@@ -83,31 +83,7 @@ func linearMap(A []float64, n int, theta, V []float64) ([]float64, []float64) {
 	P := len(theta)
 	est := make([]float64, n)
 	for i := 0; i < n; i++ {
-		for j := 0; j < P; j++ {
-			est[i] += A[i*P+j] * theta[j]
-		}
+		est[i] = dot(A[i*P:(i+1)*P], theta)
 	}
-	AV := make([]float64, n*P)
-	for i := 0; i < n; i++ {
-		for k := 0; k < P; k++ {
-			a := A[i*P+k]
-			if a == 0 {
-				continue
-			}
-			for j := 0; j < P; j++ {
-				AV[i*P+j] += a * V[k*P+j]
-			}
-		}
-	}
-	cov := make([]float64, n*n)
-	for i := 0; i < n; i++ {
-		for j := 0; j < n; j++ {
-			s := 0.0
-			for k := 0; k < P; k++ {
-				s += AV[i*P+k] * A[j*P+k]
-			}
-			cov[i*n+j] = s
-		}
-	}
-	return est, cov
+	return est, aMAt(A, n, P, V)
 }

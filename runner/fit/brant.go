@@ -2,7 +2,6 @@ package fit
 
 import (
 	"fmt"
-	"math"
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
@@ -229,6 +228,5 @@ func WolfeGould(d *Data, opt Options) Test {
 		t.P = 1
 	}
 	t.LLRestricted, t.LLFull = llp, llnp
-	_ = math.Abs
 	return t
 }

@@ -113,28 +113,7 @@ func (r rankMap) chain(th, v, M []float64) ([]float64, []float64) {
 			g[a] += J[i*P+a] * v[i]
 		}
 	}
-	MJ := make([]float64, Pn*P)
-	for i := 0; i < Pn; i++ {
-		for l := 0; l < Pn; l++ {
-			x := M[i*Pn+l]
-			if x == 0 {
-				continue
-			}
-			for a := 0; a < P; a++ {
-				MJ[i*P+a] += x * J[l*P+a]
-			}
-		}
-	}
-	H := make([]float64, P*P)
-	for a := 0; a < P; a++ {
-		for b := a; b < P; b++ {
-			x := 0.0
-			for i := 0; i < Pn; i++ {
-				x += J[i*P+a] * MJ[i*P+b]
-			}
-			H[a*P+b], H[b*P+a] = x, x
-		}
-	}
+	H := atMA(J, Pn, P, M)
 	q := r.c.J - 1
 	for k, e := range r.eff {
 		if e != Constrained {

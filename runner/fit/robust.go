@@ -193,39 +193,9 @@ func addOuter(B, s []float64, w float64) {
 	}
 }
 
+// sandwichProduct is A^-1 B A^-1 for the symmetric inverse information.
 func sandwichProduct(Ainv, B []float64, P int) []float64 {
-	T := make([]float64, P*P)
-	for i := 0; i < P; i++ {
-		for k := 0; k < P; k++ {
-			a := Ainv[i*P+k]
-			if a == 0 {
-				continue
-			}
-			for j := 0; j < P; j++ {
-				T[i*P+j] += a * B[k*P+j]
-			}
-		}
-	}
-	V := make([]float64, P*P)
-	for i := 0; i < P; i++ {
-		for k := 0; k < P; k++ {
-			t := T[i*P+k]
-			if t == 0 {
-				continue
-			}
-			for j := 0; j < P; j++ {
-				V[i*P+j] += t * Ainv[k*P+j]
-			}
-		}
-	}
-	// symmetrize
-	for i := 0; i < P; i++ {
-		for j := i + 1; j < P; j++ {
-			m := 0.5 * (V[i*P+j] + V[j*P+i])
-			V[i*P+j], V[j*P+i] = m, m
-		}
-	}
-	return V
+	return aMAt(Ainv, P, P, B)
 }
 
 // UseCovariance replaces the covariance of a fit (and its standard errors)

@@ -1,11 +1,9 @@
 package queue
 
 import (
-	"bytes"
 	"context"
 	"path/filepath"
 	"strings"
-	"sync"
 	"testing"
 	"time"
 
@@ -51,24 +49,6 @@ func connect(t *testing.T, ctx context.Context, url string) *Client {
 	return c
 }
 
-// syncBuffer is a log that goroutines can share.
-type syncBuffer struct {
-	mu  sync.Mutex
-	buf bytes.Buffer
-}
-
-func (b *syncBuffer) Write(p []byte) (int, error) {
-	b.mu.Lock()
-	defer b.mu.Unlock()
-	return b.buf.Write(p)
-}
-
-func (b *syncBuffer) String() string {
-	b.mu.Lock()
-	defer b.mu.Unlock()
-	return b.buf.String()
-}
-
 // waitFor polls cond until it holds or the limit passes.
 func waitFor(t *testing.T, limit time.Duration, what string, cond func() bool) {
 	t.Helper()
@@ -83,11 +63,11 @@ func waitFor(t *testing.T, limit time.Duration, what string, cond func() bool) {
 
 // startWorker runs a worker in a goroutine, on its own connection and
 // cache, until the test ends; its log is returned.
-func startWorker(t *testing.T, url, name string, ackWait, delay time.Duration) *syncBuffer {
+func startWorker(t *testing.T, url, name string, ackWait, delay time.Duration) *LogBuffer {
 	t.Helper()
 	ctx, cancel := context.WithCancel(context.Background())
 	c := connect(t, ctx, url)
-	log := &syncBuffer{}
+	log := &LogBuffer{}
 	w := &Worker{Client: c, Name: name, CacheDir: t.TempDir(), AckWait: ackWait, Delay: delay, Log: log}
 	done := make(chan struct{})
 	go func() {
