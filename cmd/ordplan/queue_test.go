@@ -65,20 +65,6 @@ type buildError struct {
 
 func (e *buildError) Error() string { return "go build: " + e.err.Error() + ": " + e.out }
 
-// startQueueServer runs a JetStream server on loopback for the test.
-func startQueueServer(t *testing.T) string {
-	t.Helper()
-	s, err := localserver.Start(t.TempDir())
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(func() {
-		s.Shutdown()
-		s.WaitForShutdown()
-	})
-	return s.ClientURL()
-}
-
 // proc is a child process of the test with its stderr collected.
 type proc struct {
 	cmd    *exec.Cmd
@@ -200,7 +186,7 @@ func TestQueueRunSurvivesKilledWorker(t *testing.T) {
 	if out, errs, code := runCLI("run", plan, "--out", local, "--quiet"); code != 0 {
 		t.Fatalf("local run: exit %d: %s %s", code, out, errs)
 	}
-	url := startQueueServer(t)
+	url := localserver.ForTest(t)
 	victim := startWorkerProc(t, url, "victim", testDelayEnv+"=60s")
 	run := runAsync("run", plan, "--out", remote, "--queue", url)
 	victim.waitLog(t, 30*time.Second, "started")
@@ -229,7 +215,7 @@ func TestQueueCoordinatorRestartResumes(t *testing.T) {
 	if out, errs, code := runCLI("run", plan, "--out", local, "--quiet"); code != 0 {
 		t.Fatalf("local run: exit %d: %s %s", code, out, errs)
 	}
-	url := startQueueServer(t)
+	url := localserver.ForTest(t)
 	ctx, cancel := context.WithTimeout(context.Background(), 90*time.Second)
 	defer cancel()
 	nc, err := nats.Connect(url)
@@ -319,7 +305,7 @@ func TestFitPartitionsThroughWorkers(t *testing.T) {
 	if testing.Short() {
 		t.Skip("starts worker processes")
 	}
-	url := startQueueServer(t)
+	url := localserver.ForTest(t)
 	startWorkerProc(t, url, "p1")
 	startWorkerProc(t, url, "p2")
 	src, err := os.ReadFile(filepath.Join(refDir, "gsswarm.csv"))

@@ -10,6 +10,7 @@ import (
 	"ordplan/data"
 	"ordplan/runner"
 	"ordplan/runner/fit"
+	"ordplan/runner/queue/localserver"
 )
 
 // storeReply writes a reply as a misbehaving or late worker would.
@@ -33,7 +34,7 @@ func storeReply(t *testing.T, ctx context.Context, c *Client, key string, r *Rep
 // and entries of unknown runs or keys are ignored.
 func TestDuplicateAndForeignRepliesIgnored(t *testing.T) {
 	ctx := testContext(t, 60*time.Second)
-	url := startServer(t)
+	url := localserver.ForTest(t)
 	c := connect(t, ctx, url)
 	path, jobs := gssJobs(t, "parallel", "nonparallel")
 	co := NewCoordinator(ctx, c, "plan-hash", nil)
@@ -99,7 +100,7 @@ func TestDuplicateAndForeignRepliesIgnored(t *testing.T) {
 // coordinator replaces such a copy before publishing.
 func TestDataHashMismatchRefused(t *testing.T) {
 	ctx := testContext(t, 60*time.Second)
-	url := startServer(t)
+	url := localserver.ForTest(t)
 	c := connect(t, ctx, url)
 	path, jobs := gssJobs(t, "parallel")
 	if _, err := c.data.PutBytes(ctx, jobs[0].DataHash, []byte("warm,yr89\n1,0\n2,1\n")); err != nil {
@@ -128,7 +129,7 @@ func TestDataHashMismatchRefused(t *testing.T) {
 // which keeps it with in-progress acknowledgements: it is delivered once.
 func TestLongJobKeptByInProgressAcks(t *testing.T) {
 	ctx := testContext(t, 60*time.Second)
-	url := startServer(t)
+	url := localserver.ForTest(t)
 	c := connect(t, ctx, url)
 	path, jobs := gssJobs(t, "parallel")
 	if err := c.PutData(ctx, path, jobs[0].DataHash); err != nil {
@@ -160,7 +161,7 @@ func TestLongJobKeptByInProgressAcks(t *testing.T) {
 // message, naming the partition.
 func TestPartitionWithOneCategoryRefused(t *testing.T) {
 	ctx := testContext(t, 30*time.Second)
-	url := startServer(t)
+	url := localserver.ForTest(t)
 	c := connect(t, ctx, url)
 	startWorker(t, url, "w1", 5*time.Second, 0)
 	dir := t.TempDir()

@@ -10,7 +10,6 @@ import (
 	"ordplan/data"
 	"ordplan/runner"
 	"ordplan/runner/fit"
-	"ordplan/runner/queue/localserver"
 )
 
 var refDir = filepath.Join("..", "..", "..", "shared", "reference")
@@ -22,21 +21,6 @@ func testContext(t *testing.T, limit time.Duration) context.Context {
 	ctx, cancel := context.WithTimeout(context.Background(), limit)
 	t.Cleanup(cancel)
 	return ctx
-}
-
-// startServer runs a JetStream server on loopback for the test and returns
-// its URL.
-func startServer(t *testing.T) string {
-	t.Helper()
-	s, err := localserver.Start(t.TempDir())
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(func() {
-		s.Shutdown()
-		s.WaitForShutdown()
-	})
-	return s.ClientURL()
 }
 
 func connect(t *testing.T, ctx context.Context, url string) *Client {

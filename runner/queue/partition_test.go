@@ -11,6 +11,7 @@ import (
 	"ordplan/data"
 	"ordplan/runner"
 	"ordplan/runner/fit"
+	"ordplan/runner/queue/localserver"
 )
 
 // splitCSV deals the data rows of a CSV file in turn into k files with the
@@ -50,7 +51,7 @@ func writePart(t *testing.T, dir, name, body string) PartitionRef {
 // Survey extract, Long 1997).
 func TestPartitionedFitEqualsLocal(t *testing.T) {
 	ctx := testContext(t, 60*time.Second)
-	url := startServer(t)
+	url := localserver.ForTest(t)
 	c := connect(t, ctx, url)
 	startWorker(t, url, "w1", 5*time.Second, 0)
 	startWorker(t, url, "w2", 5*time.Second, 0)
@@ -99,7 +100,7 @@ func TestPartitionedFitEqualsLocal(t *testing.T) {
 // category labels the fit is refused with a clear error.
 func TestPartitionedFitNeedsLevels(t *testing.T) {
 	ctx := testContext(t, 30*time.Second)
-	c := connect(t, ctx, startServer(t))
+	c := connect(t, ctx, localserver.ForTest(t))
 	whole := fit.Whole{J: 4, Predictors: []string{"male"}, Counts: []float64{1, 1, 1, 1}, Rows: 4}
 	m, _ := runner.Spec{Approach: "cumulative", Link: "logit", Predictors: []string{"male"}}.Model()
 	_, err := FitPartitioned(ctx, c, []PartitionRef{{Name: "p", Hash: strings.Repeat("0", 64)}}, whole, m, PartitionOptions{Data: data.Options{Outcome: "warm"}})

@@ -5,6 +5,7 @@ package localserver
 
 import (
 	"errors"
+	"testing"
 	"time"
 
 	"github.com/nats-io/nats-server/v2/server"
@@ -31,4 +32,19 @@ func Start(dir string) (*server.Server, error) {
 		return nil, errors.New("the local NATS server did not start within 10 s")
 	}
 	return s, nil
+}
+
+// ForTest starts a server for a test in a temporary folder, stops it when
+// the test ends, and returns its URL.
+func ForTest(tb testing.TB) string {
+	tb.Helper()
+	s, err := Start(tb.TempDir())
+	if err != nil {
+		tb.Fatal(err)
+	}
+	tb.Cleanup(func() {
+		s.Shutdown()
+		s.WaitForShutdown()
+	})
+	return s.ClientURL()
 }
