@@ -2,6 +2,7 @@ package runner
 
 import (
 	"math"
+	"ordplan/internal/refdata"
 	"os"
 	"path/filepath"
 	"strings"
@@ -17,7 +18,7 @@ import (
 // rows.
 func TestRunInference(t *testing.T) {
 	dir := t.TempDir()
-	abs, _ := filepath.Abs(filepath.Join("..", "..", "shared", "reference", "gsswarm.csv"))
+	abs, _ := filepath.Abs(refdata.Path("gsswarm.csv"))
 	os.WriteFile(filepath.Join(dir, "new.csv"), []byte("yr89,male,white,age,ed,prst\n1,0,1,40,12,40\n0,1,1,,12,40\n0,1,0,60,16,60\n"), 0o644)
 	src := `version: 1
 title: inference

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/json"
 	"math"
+	"ordplan/internal/refdata"
 	"os"
 	"path/filepath"
 	"strings"
@@ -59,14 +60,14 @@ func findTest(ts []fit.Test, name string) fit.Test {
 
 // TestRunReproducesReferenceTests runs the full grid on the General Social
 // Survey extract (Long 1997) and checks the runner's tests against
-// ../shared/reference/gsswarm.tests.json: Brant omnibus 49.18 (Long &
+// testdata/reference/gsswarm.tests.json: Brant omnibus 49.18 (Long &
 // Freese 2014), LR 49.20, score 48.42, Wald 48.55, Wolfe-Gould 48.91, the
 // per-variable tests and the nested likelihood-ratio tests of every
 // approach.
 func TestRunReproducesReferenceTests(t *testing.T) {
 	p := loadPlan(t, "gss_grid.yaml")
 	r := runPlan(t, p, 0)
-	b, err := os.ReadFile(filepath.Join("..", "..", "shared", "reference", "gsswarm.tests.json"))
+	b, err := os.ReadFile(refdata.Path("gsswarm.tests.json"))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -205,7 +206,7 @@ func TestRerunIsByteIdentical(t *testing.T) {
 // name both and a rerun gives the same bytes.
 func TestRunTwoOutcomes(t *testing.T) {
 	dir := t.TempDir()
-	src, err := os.ReadFile(filepath.Join("..", "..", "shared", "reference", "gsswarm.csv"))
+	src, err := os.ReadFile(refdata.Path("gsswarm.csv"))
 	if err != nil {
 		t.Fatal(err)
 	}

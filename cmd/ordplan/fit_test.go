@@ -4,13 +4,14 @@ import (
 	"bytes"
 	"encoding/json"
 	"math"
+	"ordplan/internal/refdata"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 )
 
-var refDir = filepath.Join("..", "..", "..", "shared", "reference")
+var refDir = refdata.Dir()
 
 func runCLI(args ...string) (string, string, int) {
 	var out, errb bytes.Buffer

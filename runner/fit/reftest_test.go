@@ -3,6 +3,7 @@ package fit
 import (
 	"encoding/csv"
 	"encoding/json"
+	"ordplan/internal/refdata"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -10,8 +11,8 @@ import (
 )
 
 // refDir holds the published data sets and reference fits shared by the
-// project (see ../shared/reference/README.md).
-var refDir = filepath.Join("..", "..", "..", "shared", "reference")
+// project (see testdata/reference/README.md at the repository root).
+var refDir = refdata.Dir()
 
 // refSources names the published source of each reference data set.
 var refSources = map[string]string{
@@ -85,7 +86,7 @@ func loadRef(t testing.TB, name string) *refSet {
 	rs := &refSet{name: name, cols: map[string][]float64{}}
 	b, err := os.ReadFile(filepath.Join(refDir, name+".labels.json"))
 	if err != nil {
-		t.Fatalf("reference data missing (%v): tests need ../shared/reference", err)
+		t.Fatalf("reference data missing (%v): tests need testdata/reference", err)
 	}
 	if err := json.Unmarshal(b, &rs.labels); err != nil {
 		t.Fatal(err)

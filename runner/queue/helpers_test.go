@@ -2,6 +2,7 @@ package queue
 
 import (
 	"context"
+	"ordplan/internal/refdata"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -12,7 +13,7 @@ import (
 	"ordplan/runner/fit"
 )
 
-var refDir = filepath.Join("..", "..", "..", "shared", "reference")
+var refDir = refdata.Dir()
 
 var gssPredictors = []string{"yr89", "male", "white", "age", "ed", "prst"}
 
