@@ -8,7 +8,7 @@ import (
 	"strconv"
 	"strings"
 
-	"ordplan/data"
+	"ordplan/runner/data"
 )
 
 // checkDataColumns opens the data file and checks that every column the

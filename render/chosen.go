@@ -6,7 +6,7 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
-	"ordplan/numfmt"
+	"ordplan/render/numfmt"
 	"ordplan/runner"
 )
 

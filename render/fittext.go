@@ -11,7 +11,7 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
-	"ordplan/numfmt"
+	"ordplan/render/numfmt"
 	"ordplan/runner/fit"
 )
 

@@ -5,7 +5,7 @@ import (
 	"math"
 	"strings"
 
-	"ordplan/numfmt"
+	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/fit"
 )

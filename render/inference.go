@@ -5,7 +5,7 @@ import (
 	"fmt"
 	"strconv"
 
-	"ordplan/numfmt"
+	"ordplan/render/numfmt"
 	"ordplan/runner"
 )
 

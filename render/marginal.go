@@ -4,7 +4,7 @@ import (
 	"fmt"
 	"strings"
 
-	"ordplan/numfmt"
+	"ordplan/render/numfmt"
 	"ordplan/runner"
 )
 

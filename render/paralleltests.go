@@ -3,7 +3,7 @@ package render
 import (
 	"fmt"
 
-	"ordplan/numfmt"
+	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/fit"
 )

@@ -3,8 +3,8 @@ package runner
 import (
 	"fmt"
 
-	"ordplan/data"
 	"ordplan/plan"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 

@@ -3,7 +3,7 @@ package runner
 import (
 	"fmt"
 
-	"ordplan/data"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 

@@ -5,8 +5,8 @@ import (
 	"slices"
 	"strings"
 
-	"ordplan/data"
 	"ordplan/plan"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 

@@ -10,7 +10,7 @@ import (
 	"path/filepath"
 	"sort"
 
-	"ordplan/data"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 

@@ -5,8 +5,8 @@ import (
 	"math"
 	"sort"
 
-	"ordplan/numfmt"
 	"ordplan/plan"
+	"ordplan/render/numfmt"
 	"ordplan/runner/fit"
 )
 

@@ -11,8 +11,8 @@ import (
 	"sync"
 	"time"
 
-	"ordplan/data"
 	"ordplan/plan"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 

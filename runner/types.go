@@ -1,8 +1,8 @@
 package runner
 
 import (
-	"ordplan/data"
 	"ordplan/plan"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 

@@ -10,9 +10,9 @@ import (
 	"os/signal"
 	"syscall"
 
-	"ordplan/data"
 	"ordplan/render"
 	"ordplan/runner"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 	"ordplan/runner/queue"
 )

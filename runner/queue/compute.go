@@ -8,8 +8,8 @@ import (
 	"runtime/debug"
 	"sync"
 
-	"ordplan/data"
 	"ordplan/runner"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 

@@ -7,8 +7,8 @@ import (
 	"testing"
 	"time"
 
-	"ordplan/data"
 	"ordplan/runner"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 	"ordplan/runner/queue/localserver"
 )

@@ -8,8 +8,8 @@ import (
 	"testing"
 	"time"
 
-	"ordplan/data"
 	"ordplan/runner"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 

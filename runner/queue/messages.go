@@ -4,8 +4,8 @@ import (
 	"bytes"
 	"encoding/gob"
 
-	"ordplan/data"
 	"ordplan/runner"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 

@@ -14,8 +14,8 @@ import (
 
 	"github.com/nats-io/nats.go/jetstream"
 
-	"ordplan/data"
 	"ordplan/runner"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 

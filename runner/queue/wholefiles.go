@@ -4,7 +4,7 @@ import (
 	"fmt"
 	"path/filepath"
 
-	"ordplan/data"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 

@@ -65,7 +65,7 @@
 // are written with fixed decimals, so the output is byte-identical across
 // runs. Regenerate with:
 //
-//	go run ./tools/gendemo -out plans/data/quietstreets.csv
+//	go run ./plans/gendemo -out plans/data/quietstreets.csv
 package main
 
 import (

@@ -7,7 +7,7 @@ import (
 	"reflect"
 	"testing"
 
-	"ordplan/data"
+	"ordplan/runner/data"
 )
 
 const committed = "../../plans/data/quietstreets.csv"
@@ -28,7 +28,7 @@ func TestRegenerate(t *testing.T) {
 		t.Fatal(err)
 	}
 	if !bytes.Equal(got, want) {
-		t.Fatalf("regenerated data differ from %s; run: go run ./tools/gendemo -out plans/data/quietstreets.csv", committed)
+		t.Fatalf("regenerated data differ from %s; run: go run ./plans/gendemo -out plans/data/quietstreets.csv", committed)
 	}
 }
 
