@@ -1,5 +1,3 @@
-// Package numfmt formats numbers for tables and logs, the same way on
-// every machine.
 package numfmt
 
 import (
