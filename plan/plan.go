@@ -18,6 +18,7 @@ type Plan struct {
 	Report     Report
 	Covariance string // "oim" (default), "eim", "robust", "cluster"
 	Inference  Inference
+	Deviations []Deviation // why the plan departs from its frozen form; not in the canonical form
 }
 
 // Data says where the observations are and how to read them.

@@ -16,12 +16,14 @@ import (
 
 // Decisions is the content of decisions.json.
 type Decisions struct {
-	Program  string             `json:"program"`
-	Version  string             `json:"version"`
-	Plan     PlanRef            `json:"plan"`
-	Data     DataRef            `json:"data"`
-	Notes    []string           `json:"notes"`
-	Outcomes []OutcomeDecisions `json:"outcomes"`
+	Program string  `json:"program"`
+	Version string  `json:"version"`
+	Plan    PlanRef `json:"plan"`
+	Data    DataRef `json:"data"`
+	// Registration is the plan compared with its lock (absent when not compared).
+	Registration *RegistrationRecord `json:"registration,omitempty"`
+	Notes        []string            `json:"notes"`
+	Outcomes     []OutcomeDecisions  `json:"outcomes"`
 }
 
 // PlanRef names the plan of a run.
@@ -106,7 +108,7 @@ func BuildDecisions(r *Result) *Decisions {
 	d := &Decisions{Program: "ordplan", Version: r.Version,
 		Plan:  PlanRef{File: filepath.Base(p.Path), Title: p.Title, SHA256: p.Hash},
 		Data:  DataRef{File: p.Data.File, SHA256: r.DataHash},
-		Notes: nonNil(r.Notes)}
+		Notes: nonNil(r.Notes), Registration: registrationRecord(r.Registration)}
 	for _, or := range r.Outcomes {
 		od := OutcomeDecisions{Outcome: or.Outcome.Column, Categories: or.Data.Levels, Counts: or.Data.Counts,
 			RowsRead: or.Data.RowsRead, RowsUsed: or.Data.N, Dropped: nonNilDrops(or.Data.Dropped), NObs: or.Data.NObs(),
@@ -179,13 +181,15 @@ func MarshalStable(v any) ([]byte, error) {
 
 // RunRecord is the content of run.json: what produced the outputs.
 type RunRecord struct {
-	Program   string            `json:"program"`
-	Version   string            `json:"version"`
-	Plan      PlanRef           `json:"plan"`
-	Data      DataRef           `json:"data"`
-	Seed      uint64            `json:"seed"`
-	Outputs   map[string]string `json:"outputs_sha256"`
-	Timestamp string            `json:"timestamp,omitempty"`
+	Program string  `json:"program"`
+	Version string  `json:"version"`
+	Plan    PlanRef `json:"plan"`
+	Data    DataRef `json:"data"`
+	Seed    uint64  `json:"seed"`
+	// Registration is the plan compared with its lock (absent when not compared).
+	Registration *RegistrationRecord `json:"registration,omitempty"`
+	Outputs      map[string]string   `json:"outputs_sha256"`
+	Timestamp    string              `json:"timestamp,omitempty"`
 }
 
 // WriteFiles writes the named files into dir, then run.json with their
@@ -198,6 +202,7 @@ func WriteFiles(r *Result, dir string, files map[string][]byte) error {
 		Plan: PlanRef{File: filepath.Base(r.Plan.Path), Title: r.Plan.Title, SHA256: r.Plan.Hash},
 		Data: DataRef{File: r.Plan.Data.File, SHA256: r.DataHash}, Seed: r.Plan.Seed, Outputs: map[string]string{}}
 	rec.Timestamp = r.Started
+	rec.Registration = registrationRecord(r.Registration)
 	names := make([]string, 0, len(files))
 	for n := range files {
 		names = append(names, n)

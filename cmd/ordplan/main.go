@@ -24,9 +24,10 @@ const (
 const usage = `ordplan: analysis plans for ordered outcomes
 
 usage:
-  ordplan run PLAN.yaml [--out DIR] [--previous DIR] [--workers N] [--queue nats://HOST:PORT]
+  ordplan run PLAN.yaml [--out DIR] [--previous DIR] [--workers N] [--queue nats://HOST:PORT] [--allow-unregistered-changes]
   ordplan worker --queue nats://HOST:PORT [--cache DIR] [--jobs N]
-  ordplan check PLAN.yaml
+  ordplan check PLAN.yaml [--no-data] [--allow-unregistered-changes]
+  ordplan freeze PLAN.yaml [--registration ID] [--replace]
   ordplan fit --data FILE --outcome COL --predictors a,b,c [options]
   ordplan version
 
@@ -49,6 +50,8 @@ func run(args []string, stdout, stderr io.Writer) int {
 		return cmdRun(args[1:], stdout, stderr)
 	case "check":
 		return cmdCheck(args[1:], stdout, stderr)
+	case "freeze":
+		return cmdFreeze(args[1:], stdout, stderr)
 	case "worker":
 		return cmdWorker(args[1:], stdout, stderr)
 	case "version":

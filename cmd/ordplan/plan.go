@@ -13,23 +13,59 @@ import (
 
 func cmdCheck(args []string, stdout, stderr io.Writer) int {
 	fs := newFlags("check", stderr)
+	noData := fs.Bool("no-data", false, "check the plan alone, before the data file exists")
+	allow := fs.Bool("allow-unregistered-changes", false, "do not fail on changes from the frozen plan that the plan's deviations list does not explain")
+	planPath, args := leadingArg(args)
 	if stop, code := parseFlags(fs, args); stop {
 		return code
 	}
-	if fs.NArg() != 1 {
-		fmt.Fprintln(stderr, "usage: ordplan check PLAN.yaml")
+	if planPath == "" && fs.NArg() == 1 {
+		planPath = fs.Arg(0)
+	} else if fs.NArg() > 0 || planPath == "" {
+		fmt.Fprintln(stderr, "usage: ordplan check PLAN.yaml [--no-data] [--allow-unregistered-changes]")
 		return exitUsage
 	}
-	p, err := plan.Load(fs.Arg(0))
+	var p *plan.Plan
+	var err error
+	if *noData {
+		var src []byte
+		if src, err = os.ReadFile(planPath); err != nil {
+			return fail(stderr, fmt.Errorf("cannot read plan: %w", err))
+		}
+		p, err = plan.Parse(src, planPath)
+	} else {
+		p, err = plan.Load(planPath)
+	}
 	if err != nil {
 		fmt.Fprintln(stderr, err)
 		return exitFail
 	}
-	if err := runner.CheckData(p); err != nil {
-		fmt.Fprintln(stderr, err)
-		return exitFail
+	st, code := registration(p, *allow, stderr)
+	if code != exitOK {
+		return code
 	}
-	fmt.Fprintf(stdout, "%s: plan is valid (%d outcome(s), %d predictors, sha256 %s)\n", p.Path, len(p.Outcomes), len(p.Predictors), p.Hash)
+	if !*noData {
+		if err := runner.CheckData(p); err != nil {
+			fmt.Fprintln(stderr, err)
+			return exitFail
+		}
+	}
+	fmt.Fprintln(stdout, registrationLine(st))
+	for _, c := range st.Changes {
+		reason := c.Reason
+		if reason == "" {
+			reason = "NO STATED REASON"
+		}
+		fmt.Fprintf(stdout, "  %s: %s -> %s (%s)\n", c.Path, c.From, c.To, reason)
+	}
+	for _, dv := range st.Unused {
+		fmt.Fprintf(stdout, "note: deviations: %q (line %d) explains no change from the frozen plan\n", dv.Key, dv.Line)
+	}
+	what := "plan is valid"
+	if *noData {
+		what = "plan is valid (data file not read)"
+	}
+	fmt.Fprintf(stdout, "%s: %s (%d outcome(s), %d predictors, sha256 %s)\n", p.Path, what, len(p.Outcomes), len(p.Predictors), p.Hash)
 	return exitOK
 }
 
@@ -40,6 +76,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	workers := fs.Int("workers", 0, "fits run at once (default: all cores); results do not depend on it")
 	quiet := fs.Bool("quiet", false, "no progress lines")
 	queueURL := fs.String("queue", "", "run the fits on ordplan worker processes through the JetStream server at this NATS URL")
+	allow := fs.Bool("allow-unregistered-changes", false, "run although the plan departs from its frozen form without a stated reason (the report says so in its first lines)")
 	// Accept the plan before or after the options.
 	var planPath string
 	if len(args) > 0 && len(args[0]) > 0 && args[0][0] != '-' {
@@ -59,6 +96,10 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, err)
 		return exitFail
 	}
+	reg, code := registration(p, *allow, stderr)
+	if code != exitOK {
+		return code
+	}
 	dir := *out
 	if dir == "" {
 		base := filepath.Base(planPath)
@@ -76,6 +117,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
+	res.Registration = reg
 	dec := runner.BuildDecisions(res)
 	var changes []string
 	if *previous != "" {
@@ -90,6 +132,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	if err := runner.WriteFiles(res, dir, files); err != nil {
 		return fail(stderr, err)
 	}
+	fmt.Fprintln(stdout, registrationLine(reg))
 	for _, o := range dec.Outcomes {
 		chosen := "no model chosen"
 		if o.Chosen != nil {

@@ -1,0 +1,62 @@
+package main
+
+import (
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"ordplan/plan"
+	"ordplan/plan/lock"
+)
+
+// freezeAs writes the lock of the plan text src beside DIR/ID.yaml, as if
+// src had been frozen under that name.
+func freezeAs(t *testing.T, dir, id, src string) string {
+	t.Helper()
+	path := filepath.Join(dir, id+".yaml")
+	p, err := plan.Parse([]byte(src), path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	f := lock.New(p, "TEST-1", time.Date(2026, 12, 1, 9, 0, 0, 0, time.UTC), "test")
+	lp := lock.PathFor(path)
+	os.Remove(lp)
+	if err := os.WriteFile(lp, f.Encode(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return lp
+}
+
+// registrationItems are the catalogue items of freezing and deviations.
+func registrationItems() []badInput {
+	changed := edit("{by: aic}", "{by: bic}")
+	return []badInput{
+		{id: "R1", name: "plan changed after freezing, no stated reason", args: []string{"run"}, plan: changed, code: 1, lines: true,
+			setup: func(t *testing.T, dir, id string) { freezeAs(t, dir, id, goodPlan) },
+			want: []string{"R1.yaml: the plan departs from its registered form (R1.lock.json, frozen 2026-12-01T09:00:00Z) in 1 key(s) without a stated reason:",
+				`rules[1].choose.by: "aic" -> "bic"`, "--allow-unregistered-changes"}},
+		{id: "R2", name: "lock file edited by hand", args: []string{"check"}, plan: goodPlan, code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				lp := freezeAs(t, dir, id, goodPlan)
+				b, _ := os.ReadFile(lp)
+				if err := os.WriteFile(lp, []byte(strings.Replace(string(b), `"aic"`, `"bic"`, 1)), 0o644); err != nil {
+					t.Fatal(err)
+				}
+			},
+			want: []string{"R2.lock.json: the lock file was edited by hand (its lock_checksum does not match its content)"}},
+		{id: "R3", name: "freezing over an existing lock", args: []string{"freeze"}, plan: goodPlan, code: 1,
+			setup: func(t *testing.T, dir, id string) { freezeAs(t, dir, id, goodPlan) },
+			want:  []string{"R3.lock.json already exists", "is not replaced silently", "pass --replace"},
+			check: func(t *testing.T, dir, out, errs string) {
+				f, err := lock.Read(filepath.Join(dir, "R3.lock.json"))
+				if err != nil || f.Registration != "TEST-1" {
+					t.Errorf("the old lock changed: %v %+v", err, f)
+				}
+			}},
+		{id: "R4", name: "deviation without a reason", args: []string{"check"}, code: 1,
+			plan: goodPlan + "deviations:\n  - key: rules[1].choose.by\n    reason: \"  \"\n",
+			want: []string{"deviations[0].reason: the reason is empty; say why the registered plan was changed"}},
+	}
+}

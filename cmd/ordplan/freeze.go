@@ -1,0 +1,98 @@
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"strings"
+	"time"
+
+	"ordplan/plan"
+	"ordplan/plan/lock"
+	"ordplan/runner"
+)
+
+const freezeUsage = "usage: ordplan freeze PLAN.yaml [--registration ID] [--replace]"
+
+// cmdFreeze writes the lock file of a plan.
+func cmdFreeze(args []string, stdout, stderr io.Writer) int {
+	fs := newFlags("freeze", stderr)
+	reg := fs.String("registration", "", "identifier of the registration (e.g. the registry's id or DOI), recorded in the lock")
+	replace := fs.Bool("replace", false, "replace an existing lock (the old one is kept as LOCK.replaced-TIME)")
+	planPath, args := leadingArg(args)
+	if stop, code := parseFlags(fs, args); stop {
+		return code
+	}
+	if planPath == "" && fs.NArg() == 1 {
+		planPath = fs.Arg(0)
+	} else if fs.NArg() > 0 || planPath == "" {
+		fmt.Fprintln(stderr, freezeUsage)
+		return exitUsage
+	}
+	if strings.ContainsAny(*reg, "\n\r\t") {
+		fmt.Fprintln(stderr, "ordplan freeze: --registration must be one line of text")
+		return exitUsage
+	}
+	src, err := os.ReadFile(planPath)
+	if err != nil {
+		return fail(stderr, fmt.Errorf("cannot read plan: %w", err))
+	}
+	// The data usually do not exist yet: the plan is checked on its own.
+	p, err := plan.Parse(src, planPath)
+	if err != nil {
+		fmt.Fprintln(stderr, err)
+		return exitFail
+	}
+	f := lock.New(p, strings.TrimSpace(*reg), time.Now(), runner.Version)
+	path, kept, err := lock.Write(f, planPath, *replace)
+	if err != nil {
+		var ee *lock.ExistsError
+		if errors.As(err, &ee) {
+			fmt.Fprintf(stderr, "ordplan freeze: %v\n", err)
+			return exitFail
+		}
+		return fail(stderr, err)
+	}
+	if kept != "" {
+		fmt.Fprintf(stdout, "old lock kept as %s\n", kept)
+	}
+	fmt.Fprintf(stdout, "froze %s: %s (canonical sha256 %s, %s)\n", planPath, path, f.SHA256, f.FrozenAt)
+	if len(p.Deviations) > 0 {
+		fmt.Fprintf(stdout, "note: the plan's deviations list (%d item(s)) is not part of the frozen form; it explains later changes\n", len(p.Deviations))
+	}
+	return exitOK
+}
+
+// leadingArg takes a plan path written before the options.
+func leadingArg(args []string) (string, []string) {
+	if len(args) > 0 && len(args[0]) > 0 && args[0][0] != '-' {
+		return args[0], args[1:]
+	}
+	return "", args
+}
+
+// registration compares the plan with its lock for run and check. An
+// unexplained change is printed in full and stops the command.
+func registration(p *plan.Plan, allow bool, stderr io.Writer) (*lock.Status, int) {
+	st, err := lock.Check(p, allow)
+	if err != nil {
+		fmt.Fprintf(stderr, "ordplan: %v\n", err)
+		return nil, exitFail
+	}
+	return st, exitOK
+}
+
+// registrationLine is the one-line summary check and run print.
+func registrationLine(st *lock.Status) string {
+	switch st.State {
+	case lock.StateNone:
+		return "registered plan: none (no " + st.LockFile + " beside the plan; `ordplan freeze` writes one)"
+	case lock.StateMatches:
+		return "registered plan: matches " + st.LockFile + " (frozen " + st.Lock.FrozenAt + ")"
+	case lock.StateDeviations:
+		return fmt.Sprintf("registered plan: %d deviation(s) from %s, each with a stated reason", len(st.Changes), st.LockFile)
+	}
+	return fmt.Sprintf("registered plan: UNREGISTERED CHANGES: %d of %d change(s) from %s have no stated reason (allowed by --allow-unregistered-changes)",
+		st.Unexplained(), len(st.Changes), st.LockFile)
+}

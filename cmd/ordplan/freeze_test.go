@@ -1,0 +1,80 @@
+package main
+
+import (
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+// A plan frozen, run as frozen, changed with a reason, and changed without
+// one and forced: the report opens with the comparison each time.
+func TestFreezeRunDeviations(t *testing.T) {
+	dir := t.TempDir()
+	var data strings.Builder
+	data.WriteString("y,a,b\n")
+	for i := 0; i < 90; i++ {
+		a := float64(i%9) - 4
+		b := i % 2
+		y := 1 + (i*7+int(a)+3*b+20)%3
+		data.WriteString(strings.Join([]string{itoa(y), itoa(int(a)), itoa(b)}, ",") + "\n")
+	}
+	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(data.String()), 0o644)
+	planPath := filepath.Join(dir, "p.yaml")
+	src := "version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [a, b]\n" +
+		"models: {approaches: [cumulative], levels: [parallel, nonparallel]}\ntests: {parallel_lines: [lr]}\n" +
+		"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\n"
+	os.WriteFile(planPath, []byte(src), 0o644)
+	out, errs, code := runCLI("freeze", planPath, "--registration", "REG 12")
+	if code != 0 || !strings.Contains(out, "p.lock.json") {
+		t.Fatalf("freeze: %d %s %s", code, out, errs)
+	}
+	report := func(args ...string) (string, string, int) {
+		o := filepath.Join(dir, "out")
+		os.RemoveAll(o)
+		out, errs, code := runCLI(append([]string{"run", planPath, "--out", o, "--quiet"}, args...)...)
+		md, _ := os.ReadFile(filepath.Join(o, "report.md"))
+		return string(md), out + errs, code
+	}
+	opening := func(md string) string {
+		lines := strings.SplitN(md, "\n", 4)
+		if len(lines) < 3 {
+			return md
+		}
+		return lines[2]
+	}
+	md, msg, code := report()
+	if code != 0 || !strings.HasPrefix(opening(md), "**Registered plan: matches**") || !strings.Contains(msg, "registered plan: matches p.lock.json") {
+		t.Fatalf("as frozen: %d %s\n%s", code, msg, md)
+	}
+	if !strings.Contains(opening(md), "registration REG 12") {
+		t.Errorf("registration id missing: %s", opening(md))
+	}
+	// A changed rule with a stated reason: the Deviations section.
+	os.WriteFile(planPath, []byte(strings.Replace(src, "{by: aic}", "{by: bic}", 1)+
+		"deviations:\n  - key: rules[1].choose.by\n    reason: BIC, as the protocol's section 4 says\n"), 0o644)
+	md, msg, code = report()
+	if code != 0 || opening(md) != "## Deviations from the registered plan" ||
+		!strings.Contains(md, "| `rules[1].choose.by` | `\"aic\"` | `\"bic\"` | BIC, as the protocol's section 4 says |") {
+		t.Fatalf("with reason: %d %s\n%s", code, msg, md)
+	}
+	// Without the reason: refused, then forced.
+	os.WriteFile(planPath, []byte(strings.Replace(src, "{by: aic}", "{by: bic}", 1)), 0o644)
+	if _, msg, code = report(); code != 1 || !strings.Contains(msg, `rules[1].choose.by: "aic" -> "bic"`) {
+		t.Fatalf("without reason: %d %s", code, msg)
+	}
+	md, msg, code = report("--allow-unregistered-changes")
+	if code != 0 || !strings.HasPrefix(opening(md), "**UNREGISTERED CHANGES: 1 of the 1 change(s)") || !strings.Contains(md, "**no stated reason**") {
+		t.Fatalf("forced: %d %s\n%s", code, msg, md)
+	}
+	if !strings.Contains(msg, "registered plan: UNREGISTERED CHANGES") {
+		t.Errorf("stdout does not say so: %s", msg)
+	}
+	dec, _ := os.ReadFile(filepath.Join(dir, "out", "decisions.json"))
+	if !strings.Contains(string(dec), `"state": "unexplained"`) || !strings.Contains(string(dec), `"allowed_unexplained": true`) {
+		t.Errorf("decisions.json lacks the registration:\n%.600s", dec)
+	}
+}
+
+func itoa(i int) string { return strconv.Itoa(i) }

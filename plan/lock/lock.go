@@ -1,0 +1,216 @@
+// Package lock freezes a plan before the data are seen and compares later
+// runs with the frozen form.
+//
+// `ordplan freeze PLAN` writes PLAN's lock file beside it (example.yaml ->
+// example.lock.json): the SHA-256 of the plan's canonical form, the canonical
+// form itself (so that a later change can be shown key by key), the UTC time,
+// the program version and the registration identifier the author gives. The
+// lock carries its own checksum, so a lock edited by hand is recognised. A
+// lock is never replaced silently.
+//
+// Check finds the lock of a plan and compares: the plan matches, or it
+// departs from the frozen form, each change explained by the plan's
+// deviations list or not.
+package lock
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"strings"
+	"time"
+
+	"ordplan/plan"
+)
+
+// Format is the version of the lock file layout.
+const Format = 1
+
+// File is the content of a lock file.
+type File struct {
+	Format       int             `json:"ordplan_lock"`
+	PlanFile     string          `json:"plan_file"`
+	SHA256       string          `json:"canonical_sha256"`
+	FrozenAt     string          `json:"frozen_at"`
+	Version      string          `json:"program_version"`
+	Registration string          `json:"registration"`
+	Canonical    json.RawMessage `json:"canonical"`
+	Checksum     string          `json:"lock_checksum"`
+}
+
+// PathFor gives the lock file of a plan: the plan's name with its
+// extension replaced by .lock.json, in the plan's folder.
+func PathFor(planPath string) string {
+	ext := filepath.Ext(planPath)
+	return strings.TrimSuffix(planPath, ext) + ".lock.json"
+}
+
+// canonicalSum is the hex SHA-256 of a plan's canonical form.
+func canonicalSum(canon []byte) string {
+	s := sha256.Sum256(canon)
+	return hex.EncodeToString(s[:])
+}
+
+// checksum covers every field of the lock but the checksum itself.
+func (f *File) checksum(canon []byte) string {
+	h := sha256.New()
+	fmt.Fprintf(h, "ordplan lock %d\nplan_file %s\ncanonical_sha256 %s\nfrozen_at %s\nprogram_version %s\nregistration %s\n",
+		f.Format, f.PlanFile, f.SHA256, f.FrozenAt, f.Version, f.Registration)
+	h.Write(canon)
+	return hex.EncodeToString(h.Sum(nil))
+}
+
+// New builds the lock of a plan.
+func New(p *plan.Plan, registration string, now time.Time, version string) *File {
+	canon := p.Canonical()
+	f := &File{Format: Format, PlanFile: filepath.Base(p.Path), SHA256: canonicalSum(canon),
+		FrozenAt: now.UTC().Format(time.RFC3339), Version: version, Registration: registration,
+		Canonical: json.RawMessage(bytes.TrimSpace(canon))}
+	f.Checksum = f.checksum(canon)
+	return f
+}
+
+// Encode gives the bytes of the lock file.
+func (f *File) Encode() []byte {
+	var buf bytes.Buffer
+	enc := json.NewEncoder(&buf)
+	enc.SetEscapeHTML(false)
+	enc.SetIndent("", "  ")
+	if err := enc.Encode(f); err != nil {
+		panic("lock: encoding failed: " + err.Error())
+	}
+	return buf.Bytes()
+}
+
+// ExistsError is returned when a lock is already there and may not be
+// replaced.
+type ExistsError struct {
+	Path string
+	Old  *File // nil when the old lock cannot be read
+}
+
+func (e *ExistsError) Error() string {
+	what := "a lock file"
+	if e.Old != nil {
+		what = fmt.Sprintf("the lock written at %s (canonical sha256 %.12s...)", e.Old.FrozenAt, e.Old.SHA256)
+		if e.Old.Registration != "" {
+			what += ", registration " + e.Old.Registration + ","
+		}
+	}
+	return fmt.Sprintf("%s already exists: %s is not replaced silently; a registered plan's changes belong in its deviations list. To freeze anew (the old lock is kept as %s.replaced-TIME), pass --replace",
+		e.Path, what, filepath.Base(e.Path))
+}
+
+// Write writes the lock beside the plan without ever clobbering a file:
+// an existing lock is an ExistsError unless replace is set, and then the
+// old lock is renamed to LOCK.replaced-<its frozen_at>, never deleted.
+func Write(f *File, planPath string, replace bool) (path, kept string, err error) {
+	path = PathFor(planPath)
+	if _, err := os.Lstat(path); err == nil {
+		old, _ := Read(path)
+		if !replace {
+			return path, "", &ExistsError{Path: path, Old: old}
+		}
+		stamp := time.Now().UTC().Format("20060102T150405Z")
+		if old != nil {
+			if t, err := time.Parse(time.RFC3339, old.FrozenAt); err == nil {
+				stamp = t.UTC().Format("20060102T150405Z")
+			}
+		}
+		kept = path + ".replaced-" + stamp
+		if _, err := os.Lstat(kept); err == nil {
+			return path, "", fmt.Errorf("%s: cannot keep the old lock: %s already exists", path, kept)
+		}
+		if err := os.Rename(path, kept); err != nil {
+			return path, "", fmt.Errorf("%s: cannot keep the old lock: %w", path, err)
+		}
+	} else if !errors.Is(err, fs.ErrNotExist) {
+		return path, "", err
+	}
+	if err := createNew(path, f.Encode()); err != nil {
+		return path, kept, err
+	}
+	return path, kept, nil
+}
+
+// createNew writes data to a temporary file in path's folder and links it
+// to path, which fails if path appeared in the meantime: the file is
+// either absent or complete, and nothing is overwritten.
+func createNew(path string, data []byte) error {
+	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
+	if err != nil {
+		return err
+	}
+	name := tmp.Name()
+	defer os.Remove(name)
+	if _, err := tmp.Write(data); err != nil {
+		tmp.Close()
+		return err
+	}
+	if err := tmp.Sync(); err != nil {
+		tmp.Close()
+		return err
+	}
+	if err := tmp.Close(); err != nil {
+		return err
+	}
+	if err := os.Link(name, path); err != nil {
+		if errors.Is(err, fs.ErrExist) {
+			return &ExistsError{Path: path}
+		}
+		return err
+	}
+	return nil
+}
+
+// Read reads and verifies a lock file: its layout, its own checksum, and
+// the SHA-256 of the canonical form it holds.
+func Read(path string) (*File, error) {
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return nil, err
+	}
+	var f File
+	dec := json.NewDecoder(bytes.NewReader(b))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&f); err != nil {
+		return nil, fmt.Errorf("%s: not a lock file written by ordplan freeze (%v)", path, err)
+	}
+	if f.Format != Format {
+		return nil, fmt.Errorf("%s: unsupported lock format %d (want %d)", path, f.Format, Format)
+	}
+	canon, err := indentCanonical(f.Canonical)
+	if err != nil {
+		return nil, fmt.Errorf("%s: canonical: %v", path, err)
+	}
+	edited := func(what string) error {
+		return fmt.Errorf("%s: the lock file was edited by hand (%s); a lock is written only by `ordplan freeze`: restore the registered copy, or freeze anew with --replace if the registration itself is being replaced", path, what)
+	}
+	if f.Checksum != f.checksum(canon) {
+		return nil, edited("its lock_checksum does not match its content")
+	}
+	if canonicalSum(canon) != f.SHA256 {
+		return nil, edited("canonical_sha256 is not the SHA-256 of the canonical form it holds")
+	}
+	return &f, nil
+}
+
+// indentCanonical gives the canonical form's bytes as Plan.Canonical
+// writes them.
+func indentCanonical(raw json.RawMessage) ([]byte, error) {
+	if len(raw) == 0 {
+		return nil, errors.New("missing")
+	}
+	var buf bytes.Buffer
+	if err := json.Indent(&buf, raw, "", "  "); err != nil {
+		return nil, err
+	}
+	buf.WriteByte('\n')
+	return buf.Bytes(), nil
+}

@@ -1,0 +1,227 @@
+package lock
+
+import (
+	"errors"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"ordplan/plan"
+)
+
+const basePlan = `version: 1
+data:
+  file: d.csv
+  missing_values: ["", "NA"]
+outcomes:
+  - column: y
+    categories: [low, mid, high]
+predictors: [a, b]
+models:
+  approaches: [cumulative]
+  levels: [parallel, nonparallel]
+tests: {parallel_lines: [lr]}
+rules:
+  - reject_unconverged: true
+  - reject_if_test_rejects: {test: lr, alpha: 0.05}
+  - choose: {by: aic}
+`
+
+var frozenAt = time.Date(2026, 12, 1, 9, 30, 0, 0, time.UTC)
+
+// setup writes the plan text src as DIR/p.yaml, freezes basePlan beside
+// it and returns the parsed current plan.
+func setup(t *testing.T, src string) (*plan.Plan, string) {
+	t.Helper()
+	dir := t.TempDir()
+	path := filepath.Join(dir, "p.yaml")
+	base, err := plan.Parse([]byte(basePlan), path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, _, err := Write(New(base, "REG-7", frozenAt, "test"), path, false); err != nil {
+		t.Fatal(err)
+	}
+	p, err := plan.Parse([]byte(src), path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return p, path
+}
+
+func TestMatches(t *testing.T) {
+	// Comments, key order and spelled-out defaults do not change the
+	// canonical form.
+	same := strings.Replace(basePlan, "version: 1\n", "version: 1 # registered\ncovariance: oim\n", 1)
+	p, _ := setup(t, same)
+	st, err := Check(p, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if st.State != StateMatches || len(st.Changes) != 0 || st.Lock.Registration != "REG-7" {
+		t.Fatalf("state %s, changes %v", st.State, st.Changes)
+	}
+}
+
+func TestChangedRuleWithoutReason(t *testing.T) {
+	p, _ := setup(t, strings.Replace(basePlan, "alpha: 0.05}", "alpha: 0.01}", 1))
+	st, err := Check(p, false)
+	var ue *UnexplainedError
+	if !errors.As(err, &ue) {
+		t.Fatalf("want an UnexplainedError, got %v", err)
+	}
+	want := []Explained{{Change: Change{Path: "rules[1].reject_if_test_rejects.alpha", From: "0.05", To: "0.01"}}}
+	if len(st.Changes) != 1 || st.Changes[0] != want[0] {
+		t.Fatalf("changes %+v, want %+v", st.Changes, want)
+	}
+	if !strings.Contains(err.Error(), "rules[1].reject_if_test_rejects.alpha: 0.05 -> 0.01") {
+		t.Errorf("message does not show the change:\n%v", err)
+	}
+	// Allowed by the command line: the status says so.
+	st, err = Check(p, true)
+	if err != nil || st.State != StateUnexplained || !st.Allowed || st.Unexplained() != 1 {
+		t.Fatalf("allowed: %v %+v", err, st)
+	}
+}
+
+func TestChangedRuleWithReason(t *testing.T) {
+	src := strings.Replace(basePlan, "alpha: 0.05}", "alpha: 0.01}", 1) +
+		"deviations:\n  - key: rules[1]\n    reason: the registry asked for a stricter test\n  - key: predictors\n    reason: not changed\n"
+	p, _ := setup(t, src)
+	st, err := Check(p, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if st.State != StateDeviations || len(st.Changes) != 1 || st.Changes[0].Reason != "the registry asked for a stricter test" {
+		t.Fatalf("%+v", st)
+	}
+	if len(st.Unused) != 1 || st.Unused[0].Key != "predictors" {
+		t.Errorf("unused deviations: %+v", st.Unused)
+	}
+}
+
+func TestInsertedRuleAndListChanges(t *testing.T) {
+	src := strings.Replace(basePlan, "  - choose: {by: aic}\n", "  - prefer_simpler: {by: bic}\n", 1)
+	src = strings.Replace(src, "[a, b]", "[a, b, c]", 1)
+	p, _ := setup(t, src)
+	st, _ := Check(p, true)
+	var got []string
+	for _, c := range st.Changes {
+		got = append(got, c.Path+": "+c.From+" -> "+c.To)
+	}
+	want := []string{
+		`predictors: ["a", "b"] -> ["a", "b", "c"]`,
+		`rules[2].choose: {"by": "aic", "margin": 0} -> (absent)`,
+		`rules[2].prefer_simpler: (absent) -> {"by": "bic", "margin": 2}`,
+	}
+	if strings.Join(got, "\n") != strings.Join(want, "\n") {
+		t.Errorf("changes\n%s\nwant\n%s", strings.Join(got, "\n"), strings.Join(want, "\n"))
+	}
+}
+
+func TestChangedDataDictionary(t *testing.T) {
+	// The outcome's categories and the missing-value codes are part of the
+	// data's description: changing them is a deviation.
+	src := strings.Replace(basePlan, "[low, mid, high]", "[low, high]", 1)
+	src = strings.Replace(src, `["", "NA"]`, `["", "NA", "-9"]`, 1)
+	p, _ := setup(t, src)
+	st, err := Check(p, false)
+	if err == nil {
+		t.Fatal("a changed data description ran without a stated reason")
+	}
+	var got []string
+	for _, c := range st.Changes {
+		got = append(got, c.Path)
+	}
+	if strings.Join(got, ",") != "data.missing_values,outcomes[0].categories" {
+		t.Errorf("changed keys %v", got)
+	}
+}
+
+func TestNoLock(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "p.yaml")
+	p, err := plan.Parse([]byte(basePlan), path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	st, err := Check(p, false)
+	if err != nil || st.State != StateNone || st.LockFile != "p.lock.json" {
+		t.Fatalf("%v %+v", err, st)
+	}
+}
+
+func TestLockNotOverwrittenSilently(t *testing.T) {
+	p, path := setup(t, basePlan)
+	lp := PathFor(path)
+	before, _ := os.ReadFile(lp)
+	_, _, err := Write(New(p, "OTHER", frozenAt.Add(time.Hour), "test"), path, false)
+	var ee *ExistsError
+	if !errors.As(err, &ee) || ee.Old == nil || ee.Old.Registration != "REG-7" {
+		t.Fatalf("want an ExistsError naming the old lock, got %v", err)
+	}
+	after, _ := os.ReadFile(lp)
+	if string(before) != string(after) {
+		t.Fatal("the lock changed")
+	}
+	// With replace, the old lock is kept under a new name.
+	_, kept, err := Write(New(p, "OTHER", frozenAt.Add(time.Hour), "test"), path, true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if filepath.Base(kept) != "p.lock.json.replaced-20261201T093000Z" {
+		t.Errorf("kept as %s", kept)
+	}
+	if old, _ := os.ReadFile(kept); string(old) != string(before) {
+		t.Error("the old lock was not kept byte for byte")
+	}
+	if f, err := Read(lp); err != nil || f.Registration != "OTHER" {
+		t.Errorf("new lock: %v %+v", err, f)
+	}
+}
+
+func TestHandEditedLock(t *testing.T) {
+	for _, tc := range []struct{ name, old, new, want string }{
+		{"a rule in the canonical form", `"alpha": 0.05`, `"alpha": 0.01`, "lock_checksum does not match"},
+		{"the registration", `"REG-7"`, `"REG-8"`, "lock_checksum does not match"},
+		{"the time", `09:30:00Z`, `08:30:00Z`, "lock_checksum does not match"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			p, path := setup(t, basePlan)
+			lp := PathFor(path)
+			b, _ := os.ReadFile(lp)
+			if !strings.Contains(string(b), tc.old) {
+				t.Fatalf("%q not in the lock", tc.old)
+			}
+			os.WriteFile(lp, []byte(strings.Replace(string(b), tc.old, tc.new, 1)), 0o644)
+			_, err := Check(p, true)
+			if err == nil || !strings.Contains(err.Error(), "edited by hand") || !strings.Contains(err.Error(), tc.want) {
+				t.Fatalf("got %v", err)
+			}
+		})
+	}
+	// Re-indenting the lock (e.g. by a JSON tool) is not an edit.
+	p, path := setup(t, basePlan)
+	lp := PathFor(path)
+	b, _ := os.ReadFile(lp)
+	os.WriteFile(lp, []byte(strings.ReplaceAll(string(b), "  ", "\t")), 0o644)
+	if st, err := Check(p, false); err != nil || st.State != StateMatches {
+		t.Fatalf("re-indented lock: %v", err)
+	}
+}
+
+func TestLockBytesAreStable(t *testing.T) {
+	p, err := plan.Parse([]byte(basePlan), "p.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	a := New(p, "", frozenAt, "v").Encode()
+	b := New(p, "", frozenAt, "v").Encode()
+	if string(a) != string(b) {
+		t.Fatal("two locks of one plan differ")
+	}
+	if !strings.Contains(string(a), `"frozen_at": "2026-12-01T09:30:00Z"`) {
+		t.Errorf("time not in UTC RFC 3339:\n%s", a)
+	}
+}

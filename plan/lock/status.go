@@ -1,0 +1,139 @@
+package lock
+
+import (
+	"errors"
+	"fmt"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"ordplan/plan"
+)
+
+// States of a plan against its lock.
+const (
+	StateNone        = "none"        // no lock beside the plan
+	StateMatches     = "matches"     // the canonical form is the frozen one
+	StateDeviations  = "deviations"  // it differs, and the plan gives a reason for every change
+	StateUnexplained = "unexplained" // some change has no reason (run only with AllowUnexplained)
+)
+
+// Status is a plan compared with its lock.
+type Status struct {
+	State    string
+	LockFile string // base name of the lock file (also when there is none)
+	Lock     *File  // nil when there is none
+	Changes  []Explained
+	// Unused lists stated deviations whose key changed nowhere.
+	Unused []plan.Deviation
+	// Allowed is set when unexplained changes were let through by the
+	// command line (--allow-unregistered-changes).
+	Allowed bool
+}
+
+// Explained is a change with the reason the plan gives for it ("" if none).
+type Explained struct {
+	Change
+	Reason string `json:"reason"`
+}
+
+// Unexplained counts the changes without a stated reason.
+func (s *Status) Unexplained() int {
+	n := 0
+	for _, c := range s.Changes {
+		if c.Reason == "" {
+			n++
+		}
+	}
+	return n
+}
+
+// Compare compares a plan with a lock.
+func Compare(p *plan.Plan, f *File) (*Status, error) {
+	frozen, err := indentCanonical(f.Canonical)
+	if err != nil {
+		return nil, err
+	}
+	st := &Status{LockFile: filepath.Base(PathFor(p.Path)), Lock: f, State: StateMatches}
+	cur := p.Canonical()
+	if canonicalSum(cur) == f.SHA256 {
+		st.Unused = p.Deviations
+		return st, nil
+	}
+	changes, err := Diff(frozen, cur)
+	if err != nil {
+		return nil, err
+	}
+	used := make([]bool, len(p.Deviations))
+	for _, c := range changes {
+		e := Explained{Change: c}
+		// The most specific stated key wins.
+		best := -1
+		for i, dv := range p.Deviations {
+			if dv.Covers(c.Path) && (best < 0 || len(dv.Key) > len(p.Deviations[best].Key)) {
+				best = i
+			}
+		}
+		if best >= 0 {
+			e.Reason = p.Deviations[best].Reason
+			used[best] = true
+		}
+		st.Changes = append(st.Changes, e)
+	}
+	for i, dv := range p.Deviations {
+		if !used[i] {
+			st.Unused = append(st.Unused, dv)
+		}
+	}
+	st.State = StateDeviations
+	if st.Unexplained() > 0 {
+		st.State = StateUnexplained
+	}
+	return st, nil
+}
+
+// Check finds the lock beside the plan and compares. Changes without a
+// stated reason are an error unless allow is set; the error lists them.
+func Check(p *plan.Plan, allow bool) (*Status, error) {
+	path := PathFor(p.Path)
+	if _, err := os.Stat(path); errors.Is(err, fs.ErrNotExist) {
+		return &Status{State: StateNone, LockFile: filepath.Base(path), Unused: p.Deviations}, nil
+	}
+	f, err := Read(path)
+	if err != nil {
+		return nil, err
+	}
+	st, err := Compare(p, f)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %v", path, err)
+	}
+	if st.State == StateUnexplained {
+		if !allow {
+			return st, &UnexplainedError{Plan: p.Path, Lock: path, Status: st}
+		}
+		st.Allowed = true
+	}
+	return st, nil
+}
+
+// UnexplainedError stops a run whose plan departs from the frozen form
+// without a stated reason.
+type UnexplainedError struct {
+	Plan, Lock string
+	Status     *Status
+}
+
+func (e *UnexplainedError) Error() string {
+	var b strings.Builder
+	n := e.Status.Unexplained()
+	fmt.Fprintf(&b, "%s: the plan departs from its registered form (%s, frozen %s) in %d key(s) without a stated reason:",
+		e.Plan, filepath.Base(e.Lock), e.Status.Lock.FrozenAt, n)
+	for _, c := range e.Status.Changes {
+		if c.Reason == "" {
+			fmt.Fprintf(&b, "\n  %s: %s -> %s", c.Path, c.From, c.To)
+		}
+	}
+	b.WriteString("\nstate the reason for each in the plan's deviations list (- key: KEY, reason: WHY), or run with --allow-unregistered-changes (the report then says so in its first lines)")
+	return b.String()
+}
