@@ -57,6 +57,8 @@ type OutcomeDecisions struct {
 	Choice     string             `json:"choice"`
 	Notes      []string           `json:"notes"`
 	Final      map[string]Verdict `json:"final_verdicts"`
+	Overall    []OverallRecord    `json:"overall_fit"`
+	Lipsitz    *fit.Lipsitz       `json:"lipsitz,omitempty"`
 	Hypotheses []HypothesisResult `json:"hypotheses,omitempty"`
 	Marginal   []MarginalSet      `json:"marginal_effects,omitempty"`
 }
@@ -139,6 +141,11 @@ func BuildDecisions(r *Result) *Decisions {
 			id := or.Chosen.ID
 			od.Chosen = &id
 		}
+		od.Overall = or.Overall
+		if od.Overall == nil {
+			od.Overall = []OverallRecord{}
+		}
+		od.Lipsitz = or.Lipsitz
 		od.Hypotheses = or.Hypotheses
 		od.Marginal = or.Marginal
 		d.Outcomes = append(d.Outcomes, od)

@@ -152,7 +152,11 @@ func runOutcome(p *plan.Plan, oc plan.Outcome, opt Options, dataHash string) (*O
 	// 4. The decision rules, in order.
 	applyRules(p, or)
 
-	// 5. What the plan asks beyond the choice: hypotheses, marginal
+	// 5. Overall fit of the candidates and goodness of fit of the chosen
+	// model.
+	runFitStats(p, or, fopt)
+
+	// 6. What the plan asks beyond the choice: hypotheses, marginal
 	// effects, predictions for new rows.
 	if err := runInference(p, or); err != nil {
 		return nil, err

@@ -34,6 +34,10 @@ type OutcomeResult struct {
 	Choice   string   // why the chosen model was chosen, or why none was
 	Notes    []string // models not fitted and why
 
+	Nulls   []*NullRecord   // thresholds-only fit of each approach and link
+	Overall []OverallRecord // each usable candidate against its thresholds-only model
+	Lipsitz *fit.Lipsitz    // goodness of fit of the chosen model, by groups of its score
+
 	Hypotheses []HypothesisResult // the plan's hypotheses, per model
 	Marginal   []MarginalSet      // marginal effects of the chosen model
 	NewRows    *NewRows           // predictions for the plan's new rows

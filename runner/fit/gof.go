@@ -1,0 +1,201 @@
+package fit
+
+import (
+	"fmt"
+	"math"
+	"sort"
+)
+
+// Goodness of fit by groups of the ordinal score (see docs/models.md,
+// "Goodness of fit"). Phases: (1) the score of every row, sum_j j P(y=j),
+// at the fitted parameters; (2) rows sorted by score and cut into groups
+// of about equal weight, ties kept together; (3) observed and expected
+// counts per group and category; (4) the Lipsitz test: the model refitted
+// with G-1 group indicators as parallel predictors, likelihood ratio
+// against the model.
+
+// ScoreGroups is the calibration table: for each group of rows formed by
+// the predicted ordinal score, the observed count of each category and the
+// sum of its predicted probabilities.
+type ScoreGroups struct {
+	Groups   int         `json:"groups"`
+	Levels   []string    `json:"categories"`
+	Low      []float64   `json:"score_low"`  // smallest score in the group
+	High     []float64   `json:"score_high"` // largest score in the group
+	Weight   []float64   `json:"n"`          // observations (sum of weights) in the group
+	Observed [][]float64 `json:"observed"`   // [group][category]
+	Expected [][]float64 `json:"expected"`   // [group][category]
+	group    []int       // row -> group
+}
+
+// Lipsitz is the Lipsitz test of a fit with its calibration table.
+type Lipsitz struct {
+	Test  Test         `json:"test"`
+	Table *ScoreGroups `json:"table"`
+}
+
+// DefaultScoreGroups is the number of groups used when the caller asks
+// for 0: 10, but no more than the observations allow with about five
+// expected per category and group (N / (5 J)), and at least 2.
+func DefaultScoreGroups(nobs float64, J int) int {
+	g := int(math.Floor(nobs / (5 * float64(J))))
+	return max(2, min(10, g))
+}
+
+// GroupByScore forms the calibration table of fit r on its data d with
+// about groups groups (0: DefaultScoreGroups). Fewer groups result when
+// many rows share a score.
+func GroupByScore(d *Data, r *Result, groups int) (*ScoreGroups, error) {
+	pr, err := r.problem()
+	if err != nil {
+		return nil, err
+	}
+	if d.J != r.J || len(d.Predictors) != len(r.Predictors) {
+		return nil, fmt.Errorf("the data do not match %s", r.Name)
+	}
+	n, K, J := d.N(), len(d.Predictors), d.J
+	if groups <= 0 {
+		groups = DefaultScoreGroups(d.nobs(), J)
+	}
+	w := func(i int) float64 {
+		if d.Weights == nil {
+			return 1
+		}
+		return d.Weights[i]
+	}
+	// Phase 1: scores and probabilities.
+	probs := make([]float64, n*J)
+	score := make([]float64, n)
+	for i := 0; i < n; i++ {
+		off := 0.0
+		if d.Offset != nil {
+			off = d.Offset[i]
+		}
+		p := probs[i*J : (i+1)*J]
+		pr.probsAt(r.Estimates, d.X[i*K:(i+1)*K], off, p)
+		for j, v := range p {
+			score[i] += float64(j+1) * v
+		}
+	}
+	// Phase 2: groups of about equal weight; a run of equal scores goes
+	// to the group of its weighted midpoint.
+	order := make([]int, n)
+	for i := range order {
+		order[i] = i
+	}
+	sort.SliceStable(order, func(a, b int) bool { return score[order[a]] < score[order[b]] })
+	total := d.nobs()
+	raw := make([]int, n)
+	cum := 0.0
+	for a := 0; a < n; {
+		b := a
+		tw := 0.0
+		for b < n && score[order[b]] == score[order[a]] {
+			tw += w(order[b])
+			b++
+		}
+		g := min(groups-1, int(math.Floor(float64(groups)*(cum+tw/2)/total)))
+		for c := a; c < b; c++ {
+			raw[order[c]] = g
+		}
+		cum += tw
+		a = b
+	}
+	// Renumber the groups that received weight: 0, 1, ...
+	used := make([]float64, groups)
+	for i := 0; i < n; i++ {
+		used[raw[i]] += w(i)
+	}
+	dense := make([]int, groups)
+	G := 0
+	for g := range used {
+		dense[g] = -1
+		if used[g] > 0 {
+			dense[g] = G
+			G++
+		}
+	}
+	t := &ScoreGroups{Groups: G, Levels: r.Levels, Low: make([]float64, G), High: make([]float64, G), Weight: make([]float64, G),
+		Observed: make([][]float64, G), Expected: make([][]float64, G), group: make([]int, n)}
+	for g := 0; g < G; g++ {
+		t.Low[g], t.High[g] = math.Inf(1), math.Inf(-1)
+		t.Observed[g], t.Expected[g] = make([]float64, J), make([]float64, J)
+	}
+	// Phase 3: observed and expected counts.
+	for i := 0; i < n; i++ {
+		g := dense[raw[i]]
+		if g < 0 {
+			g = 0 // a zero-weight row in an empty group: counts nothing
+		}
+		t.group[i] = g
+		wi := w(i)
+		if wi == 0 {
+			continue
+		}
+		t.Low[g], t.High[g] = math.Min(t.Low[g], score[i]), math.Max(t.High[g], score[i])
+		t.Weight[g] += wi
+		t.Observed[g][d.Y[i]] += wi
+		for j := 0; j < J; j++ {
+			t.Expected[g][j] += wi * probs[i*J+j]
+		}
+	}
+	return t, nil
+}
+
+// LipsitzTest is the Lipsitz, Fitzmaurice and Molenberghs (1996) test of
+// fit r on its data d: rows grouped by the ordinal score (GroupByScore),
+// the model refitted with indicators of groups 1..G-1 as parallel
+// predictors, and the likelihood ratio of that fit against r on G-1
+// degrees of freedom. A small p-value says the model misses a pattern
+// along its own predicted score.
+func LipsitzTest(d *Data, r *Result, groups int, opt Options) (*Lipsitz, error) {
+	t, err := GroupByScore(d, r, groups)
+	if err != nil {
+		return nil, err
+	}
+	out := &Lipsitz{Table: t}
+	G := t.Groups
+	if G < 2 {
+		out.Test = failedTest("lipsitz", "every row has the same predicted score, so there is only one group")
+		return out, nil
+	}
+	// Phase 4: the model with group indicators.
+	n, K := d.N(), len(d.Predictors)
+	K2 := K + G - 1
+	ad := &Data{Y: d.Y, J: d.J, Levels: d.Levels, Weights: d.Weights, Offset: d.Offset,
+		Predictors: append([]string(nil), d.Predictors...), X: make([]float64, n*K2)}
+	for g := 1; g < G; g++ {
+		ad.Predictors = append(ad.Predictors, fmt.Sprintf("score_group_%d", g+1))
+	}
+	for i := 0; i < n; i++ {
+		copy(ad.X[i*K2:i*K2+K], d.X[i*K:(i+1)*K])
+		if g := t.group[i]; g > 0 {
+			ad.X[i*K2+K+g-1] = 1
+		}
+	}
+	am := r.Model
+	am.Effects = append(append([]Effect(nil), r.Model.Effects...), allEffects(G-1, Parallel)...)
+	if r.Model.Groups != nil {
+		am.Groups = append(append([]int(nil), r.Model.Groups...), make([]int, G-1)...)
+	}
+	ly, err := newLayout(am, ad.J, ad.Predictors)
+	if err != nil {
+		return nil, err
+	}
+	start := make([]float64, len(ly.params))
+	for i, name := range ly.names() {
+		if v, ok := r.Estimate(name); ok {
+			start[i] = v
+		}
+	}
+	opt.Start = start
+	opt.Sandwich = nil
+	full, err := Fit(ad, am, opt)
+	if err != nil {
+		out.Test = failedTest("lipsitz", "the model with group indicators could not be fitted: %v", err)
+		return out, nil
+	}
+	out.Test = LRTest(r, full)
+	out.Test.Name = "lipsitz"
+	return out, nil
+}

@@ -1,0 +1,225 @@
+package fit
+
+import (
+	"fmt"
+	"math"
+
+	"gonum.org/v1/gonum/stat/distuv"
+)
+
+// This file holds what summarizes a fit as a whole: exponentiated effects
+// (odds ratios of logit models), the thresholds-only (null) model, the
+// likelihood-ratio test against it and pseudo-R2 measures. The formulas and
+// their published sources are listed in docs/models.md ("Overall fit").
+
+// OddsRatioKind names the odds ratio exp(b) of a logit model in each
+// comparison: what odds a unit increase of the predictor multiplies.
+func OddsRatioKind(m Model) string {
+	switch {
+	case m.Comparison == Cumulative:
+		return "cumulative odds ratio"
+	case m.Comparison == Stage && m.Backward:
+		return "continuation odds ratio (backward)"
+	case m.Comparison == Stage:
+		return "continuation odds ratio"
+	}
+	return "adjacent-category odds ratio"
+}
+
+// OddsRatioMeaning says in words which odds exp(b_m) multiplies at
+// boundary m (categories lo and hi on either side of it).
+func OddsRatioMeaning(m Model, lo, hi string) string {
+	switch {
+	case m.Comparison == Cumulative:
+		return fmt.Sprintf("odds of a category above %s against %s or below", lo, lo)
+	case m.Comparison == Stage && m.Backward:
+		return fmt.Sprintf("odds of %s against a category below it, among categories up to %s", hi, hi)
+	case m.Comparison == Stage:
+		return fmt.Sprintf("odds of a category above %s against %s, among categories from %s up", lo, lo, lo)
+	}
+	return fmt.Sprintf("odds of %s against %s", hi, lo)
+}
+
+// OddsRatio is exp(b_mk) of one predictor at one boundary (or at every
+// boundary, Boundary = 0, for a parallel predictor), with its interval
+// exp(b -/+ z se).
+type OddsRatio struct {
+	Predictor string  `json:"predictor"`
+	Boundary  int     `json:"boundary"` // 1..J-1, or 0 when one value holds at every boundary
+	Kind      string  `json:"kind"`
+	Log       float64 `json:"log_estimate"` // b_mk
+	LogSE     float64 `json:"log_se"`
+	Ratio     float64 `json:"ratio"`
+	Low       float64 `json:"low"`
+	High      float64 `json:"high"`
+}
+
+// OddsRatios returns exp(b_mk) with intervals at the given level for every
+// predictor of a logit fit: one value for a parallel predictor, one per
+// boundary for a nonparallel one, and exp(phi_m g_k) per boundary for a
+// constrained one, whose standard error on the log scale comes from the
+// delta method (b_mk = phi_m g_k is bilinear: db/dg = phi_m, db/dphi_m =
+// g_k).
+func (r *Result) OddsRatios(level float64) ([]OddsRatio, error) {
+	if r.Model.Link != Logit {
+		return nil, fmt.Errorf("odds ratios exist for logit links only, not %s", r.Model.Link)
+	}
+	if !r.OK() || r.Cov == nil {
+		return nil, fmt.Errorf("%s has no usable estimates (%s)", r.Name, r.Status)
+	}
+	if !(level > 0 && level < 1) {
+		return nil, fmt.Errorf("confidence level %g outside (0, 1)", level)
+	}
+	ly, err := newLayout(r.Model, r.J, r.Predictors)
+	if err != nil {
+		return nil, err
+	}
+	z := distuv.UnitNormal.Quantile(0.5 + level/2)
+	q, P := r.J-1, len(r.Estimates)
+	kind := OddsRatioKind(r.Model)
+	var out []OddsRatio
+	add := func(k, m int, g []float64) {
+		b := r.Effects[max(m-1, 0)][k]
+		se := math.Sqrt(quadForm(g, r.Cov))
+		out = append(out, OddsRatio{Predictor: r.Predictors[k], Boundary: m, Kind: kind, Log: b, LogSE: se,
+			Ratio: math.Exp(b), Low: math.Exp(b - z*se), High: math.Exp(b + z*se)})
+	}
+	for k, e := range r.Model.Effects {
+		s := ly.slope[k]
+		switch e {
+		case Parallel:
+			g := make([]float64, P)
+			g[s] = 1
+			add(k, 0, g)
+		case Nonparallel:
+			for m := 0; m < q; m++ {
+				g := make([]float64, P)
+				g[s+m] = 1
+				add(k, m+1, g)
+			}
+		case Constrained:
+			grp := ly.groupOf[k]
+			phi := ly.phi(r.Estimates, grp)
+			for m := 0; m < q; m++ {
+				g := make([]float64, P)
+				g[s] = phi[m]
+				if m > 0 {
+					g[ly.phiIndex[grp][m]] = r.Estimates[s]
+				}
+				add(k, m+1, g)
+			}
+		}
+	}
+	return out, nil
+}
+
+// NullModel is the thresholds-only model of m: the same comparison,
+// direction and link with no predictor (the offset, if any, kept).
+func NullModel(m Model) Model {
+	return Model{Comparison: m.Comparison, Backward: m.Backward, Link: m.Link}
+}
+
+// FitNull fits the thresholds-only model of m to the outcome (weights and
+// offset) of d.
+func FitNull(d *Data, m Model, opt Options) (*Result, error) {
+	nd := &Data{Y: d.Y, J: d.J, Levels: d.Levels, Weights: d.Weights, Offset: d.Offset}
+	opt.Start = nil
+	return Fit(nd, NullModel(m), opt)
+}
+
+// Overall is the overall fit of a model against its thresholds-only model.
+// A measure that is not defined for the model is NaN, with the reason in
+// the matching note.
+type Overall struct {
+	NullLogLik float64 `json:"null_loglik"`
+	LR         Test    `json:"lr_vs_null"`
+	McFadden   float64 `json:"mcfadden_r2"`
+	CoxSnell   float64 `json:"cox_snell_r2"`
+	Nagelkerke float64 `json:"nagelkerke_r2"`
+	// McKelvey-Zavoina: var(x'b) / (var(x'b) + var of the link's
+	// distribution), cumulative models with parallel effects only.
+	McKelveyZavoina float64 `json:"mckelvey_zavoina_r2"`
+	MZNote          string  `json:"mckelvey_zavoina_note,omitempty"`
+}
+
+// OverallFit compares fit r with its thresholds-only fit null on data d
+// (the rows r was fitted to; used for the McKelvey-Zavoina variance).
+func OverallFit(d *Data, r, null *Result) Overall {
+	o := Overall{NullLogLik: math.NaN(), McFadden: math.NaN(), CoxSnell: math.NaN(), Nagelkerke: math.NaN(), McKelveyZavoina: math.NaN()}
+	if null != nil && null.OK() {
+		o.NullLogLik = null.LogLik
+	}
+	o.LR = LRTest(null, r)
+	o.LR.Name = "lr_vs_null"
+	if r == nil || !r.OK() || math.IsNaN(o.NullLogLik) {
+		o.MZNote = "no finite log-likelihood"
+		return o
+	}
+	ll, ll0, n := r.LogLik, o.NullLogLik, r.NObs
+	o.McFadden = 1 - ll/ll0
+	// Cox-Snell: 1 - (L0/L)^(2/N); its largest value 1 - L0^(2/N).
+	o.CoxSnell = -math.Expm1(2 * (ll0 - ll) / n)
+	o.Nagelkerke = o.CoxSnell / -math.Expm1(2*ll0/n)
+	o.McKelveyZavoina, o.MZNote = mckelveyZavoina(d, r)
+	return o
+}
+
+// LinkVariance is the variance of the distribution whose distribution
+// function is the inverse link (the latent error of a cumulative model);
+// ok is false when it has none (Cauchy).
+func LinkVariance(l Link) (float64, bool) {
+	switch l {
+	case Logit:
+		return math.Pi * math.Pi / 3, true
+	case Probit:
+		return 1, true
+	case Cloglog, Loglog:
+		return math.Pi * math.Pi / 6, true
+	}
+	return math.NaN(), false
+}
+
+// mckelveyZavoina is var(eta) / (var(eta) + var(e)) with eta = x'b +
+// offset over the rows of d (weighted, divisor the sum of weights).
+func mckelveyZavoina(d *Data, r *Result) (float64, string) {
+	if r.Model.Comparison != Cumulative {
+		return math.NaN(), "defined for cumulative models only (one latent variable)"
+	}
+	for _, e := range r.Model.Effects {
+		if e != Parallel {
+			return math.NaN(), "defined for parallel effects only (one latent linear predictor)"
+		}
+	}
+	ve, ok := LinkVariance(r.Model.Link)
+	if !ok {
+		return math.NaN(), "the Cauchy distribution has no variance"
+	}
+	if d == nil || d.N() == 0 || len(d.Predictors) != len(r.Predictors) {
+		return math.NaN(), "data not available"
+	}
+	K := len(r.Predictors)
+	var sw, mean, m2 float64
+	for i := 0; i < d.N(); i++ {
+		w := 1.0
+		if d.Weights != nil {
+			w = d.Weights[i]
+		}
+		if w == 0 {
+			continue
+		}
+		eta := 0.0
+		for k := 0; k < K; k++ {
+			eta += d.X[i*K+k] * r.Effects[0][k]
+		}
+		if d.Offset != nil {
+			eta += d.Offset[i]
+		}
+		// West's weighted update of the mean and sum of squares.
+		sw += w
+		delta := eta - mean
+		mean += w / sw * delta
+		m2 += w * delta * (eta - mean)
+	}
+	v := m2 / sw
+	return v / (v + ve), ""
+}
