@@ -19,6 +19,7 @@ func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	writeData(d, or)
 	writeFreeSets(d, or)
 	writeModelTable(d, or)
+	writeOverallFit(d, or)
 	writeTests(d, or)
 	writeDecisionLog(d, or)
 	writeBoundaryEffects(d, r, or)
@@ -28,6 +29,8 @@ func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		return
 	}
 	writeChosen(d, r, or)
+	writeOddsRatios(d, r, or)
+	writeGoodnessOfFit(d, or)
 	writeHypotheses(d, or)
 	writePredictions(d, r, or)
 	writeMarginalEffects(d, r, or)

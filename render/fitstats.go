@@ -1,0 +1,150 @@
+package render
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/go-echarts/go-echarts/v2/charts"
+	"github.com/go-echarts/go-echarts/v2/opts"
+
+	"ordplan/render/numfmt"
+	"ordplan/runner"
+	"ordplan/runner/fit"
+)
+
+// writeOverallFit compares every usable candidate with the thresholds-only
+// model of its approach and link.
+func writeOverallFit(d *doc, or *runner.OutcomeResult) {
+	if len(or.Overall) == 0 {
+		return
+	}
+	d.h(3, "Overall fit")
+	d.p("Each candidate against the model with thresholds only (no predictor) of the same approach and link: the likelihood-ratio test that every slope is zero, and pseudo-R² measures. McFadden: 1 − LL/LL₀; Cox-Snell: 1 − exp(2(LL₀ − LL)/N); Nagelkerke: Cox-Snell divided by its largest value 1 − exp(2 LL₀/N); McKelvey-Zavoina (cumulative models with parallel effects): the share of the latent variable's variance explained, var(x'b)/(var(x'b) + var(e)). None of them is the share of variance explained in the usual sense; compare them between models of the same data only. Sources are listed in the documentation of the models.")
+	var rows [][]string
+	for _, o := range or.Overall {
+		mz := "—"
+		if !math.IsNaN(o.McKelveyZavoina) {
+			mz = numfmt.Fixed(o.McKelveyZavoina, 4)
+		}
+		row := []string{o.Model, numfmt.Fixed(o.NullLogLik, 3)}
+		if o.LR.OK {
+			row = append(row, numfmt.Fixed(o.LR.Chi2, 3), fmt.Sprint(o.LR.DF), numfmt.PValue(o.LR.P))
+		} else {
+			row = append(row, "not a test", "", "")
+		}
+		row = append(row, numfmt.Fixed(o.McFadden, 4), numfmt.Fixed(o.CoxSnell, 4), numfmt.Fixed(o.Nagelkerke, 4), mz)
+		rows = append(rows, row)
+	}
+	d.table([]string{"Model", "LL₀ (thresholds only)", "LR chi-square", "df", "p", "McFadden R²", "Cox-Snell R²", "Nagelkerke R²", "McKelvey-Zavoina R²"}, rows)
+	for _, o := range or.Overall {
+		if !o.LR.OK && o.LR.Reason != "" {
+			d.p("The likelihood-ratio statistics are not tests here: %s.", o.LR.Reason)
+			break
+		}
+	}
+}
+
+// writeOddsRatios writes exp(b) of the chosen model when its link is the
+// logit.
+func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
+	res := or.Chosen.Result
+	if res.Model.Link != fit.Logit || len(res.Predictors) == 0 {
+		return
+	}
+	level, _ := confidence(r)
+	ors, err := res.OddsRatios(level)
+	if err != nil {
+		d.p("Odds ratios not computed: %s.", err)
+		return
+	}
+	kind := fit.OddsRatioKind(res.Model)
+	d.h(4, "Odds ratios")
+	lo, hi := res.Levels[0], res.Levels[1]
+	d.p("exp(b) for a one-unit increase of each predictor, with %s intervals exp(b ∓ z·se): the %s. At the first boundary (%s/%s) it multiplies the %s, and likewise at the other boundaries; above 1 the outcome moves towards higher categories. A parallel predictor has one value for every boundary; a constrained predictor has exp(φ_m g) at boundary m, its interval from the delta method on b_m = φ_m g.",
+		pct(level), kind, lo, hi, fit.OddsRatioMeaning(res.Model, lo, hi))
+	var rows [][]string
+	for _, o := range ors {
+		where := "every boundary"
+		if o.Boundary > 0 {
+			where = fmt.Sprintf("%d (%s/%s)", o.Boundary, res.Levels[o.Boundary-1], res.Levels[o.Boundary])
+		}
+		rows = append(rows, []string{o.Predictor, where, numfmt.Fixed(o.Ratio, 4), numfmt.Fixed(o.Low, 4), numfmt.Fixed(o.High, 4)})
+	}
+	d.table([]string{"Predictor", "Boundary", capitalize(kind), pct(level) + " low", pct(level) + " high"}, rows)
+}
+
+func capitalize(s string) string {
+	if s == "" {
+		return s
+	}
+	return string(s[0]-'a'+'A') + s[1:]
+}
+
+// writeGoodnessOfFit writes the Lipsitz test of the chosen model, its
+// table of observed and expected counts by group of predicted score, and
+// the calibration chart.
+func writeGoodnessOfFit(d *doc, or *runner.OutcomeResult) {
+	lz := or.Lipsitz
+	if lz == nil {
+		return
+	}
+	d.h(3, "Goodness of fit of the chosen model")
+	t := lz.Table
+	if t == nil {
+		d.p("Not computed: %s.", lz.Test.Reason)
+		return
+	}
+	d.p("Rows are sorted by their predicted ordinal score (the expected category, categories scored 1 to %d) and cut into %d groups of about equal size; rows with the same score stay in one group. The Lipsitz test refits the chosen model with an indicator of each group but the first as an extra parallel predictor: if the model describes the data well along its own score, those indicators add nothing.",
+		len(t.Levels), t.Groups)
+	if lz.Test.OK {
+		d.p("Lipsitz test: chi-square(%d) = %s, p = %s.", lz.Test.DF, numfmt.Fixed(lz.Test.Chi2, 3), numfmt.PValue(lz.Test.P))
+	} else {
+		d.p("Lipsitz test not computed: %s.", lz.Test.Reason)
+	}
+	d.p("Observed and expected counts (the sum of the predicted probabilities) of each category in each group:")
+	head := []string{"Group", "Score range", "N"}
+	for _, l := range t.Levels {
+		head = append(head, l+" obs", l+" exp")
+	}
+	var rows [][]string
+	for g := 0; g < t.Groups; g++ {
+		row := []string{fmt.Sprint(g + 1), numfmt.Fixed(t.Low[g], 3) + "–" + numfmt.Fixed(t.High[g], 3), numfmt.Num(t.Weight[g])}
+		for j := range t.Levels {
+			row = append(row, numfmt.Num(t.Observed[g][j]), numfmt.Fixed(t.Expected[g][j], 1))
+		}
+		rows = append(rows, row)
+	}
+	d.table(head, rows)
+	d.charts("Chart in report.html: observed against expected share of each category by group of predicted score.", calibrationChart(d, or))
+}
+
+// calibrationChart draws, per category, the observed share in each group
+// (points) against the expected share (line).
+func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
+	t := or.Lipsitz.Table
+	id := d.chartID()
+	l := charts.NewLine()
+	l.SetGlobalOptions(append(baseOpts(id, "Observed and expected by group of predicted score", or.Chosen.ID, 420,
+		opts.Grid{Left: "6%", Right: "8%", Top: "70", Bottom: "70"}),
+		charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: "group", NameLocation: "middle", NameGap: 28}),
+		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: "share of the group", Max: 1}))...)
+	groups := make([]string, t.Groups)
+	for g := range groups {
+		groups[g] = fmt.Sprint(g + 1)
+	}
+	l.SetXAxis(groups)
+	J := len(t.Levels)
+	for j, lv := range t.Levels {
+		obs, exp := make([]float64, t.Groups), make([]float64, t.Groups)
+		for g := 0; g < t.Groups; g++ {
+			obs[g] = t.Observed[g][j] / t.Weight[g]
+			exp[g] = t.Expected[g][j] / t.Weight[g]
+		}
+		col := categoryColor(j, J)
+		l.AddSeries(lv+" expected", lineData(exp), lineStyle(col, 2, false, false)...)
+		l.AddSeries(lv+" observed", lineData(obs), append(lineStyle(col, 0, false, true),
+			charts.WithLineStyleOpts(opts.LineStyle{Color: col, Width: 0, Opacity: opts.Float(0)}))...)
+	}
+	caption := "For each category, the expected share of each group (line) and the observed share (points). Points far from their line, in a pattern, show where the model misfits; groups are ordered by predicted score."
+	return newChart(id, 420, caption, l)
+}
