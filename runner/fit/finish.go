@@ -13,84 +13,209 @@ import (
 // exceeds this is treated as singular (no finite maximum or not identified).
 const conditionLimit = 1e10
 
-func finish(d *Data, m Model, ly *layout, pr *problem, st newtonState, opt Options) *Result {
-	P := len(ly.params)
-	r := &Result{
-		Model: m, Name: m.Name(), Predictors: d.Predictors, Levels: d.levels(), J: d.J,
-		Converged: st.converged, Iterations: st.iters, Reason: st.reason,
-		NObs: d.nobs(), NRows: d.N(), NParams: P,
-		ParamNames: ly.names(), Estimates: st.theta, Decrement: st.decrement,
-		LogLik: st.ll, SupLogLik: st.ll,
-	}
-	ly.fillEstimates(r, m, st)
-	r.MinFittedProb, r.NegativeRows = pr.fittedCheck(st.theta)
+// source is what finishing a fit needs to know of where its log-likelihood
+// comes from: the rows themselves (a local fit) or sums over partitions
+// held elsewhere.
+type source struct {
+	predictors, levels []string
+	J                  int
+	nobs               float64 // weighted number of observations
+	nrows              int
+	// fitted returns the smallest fitted probability of an observed
+	// category and the number of rows with a negative category probability.
+	fitted func(theta []float64) (minP float64, neg int, err error)
+	// loglik evaluates the log-likelihood (order 0 is all finish asks of it).
+	loglik evalFunc
+	// expected returns the expected second derivatives (nil: the source
+	// cannot give them, and expected-information errors are refused).
+	expected func(theta []float64) []float64
+	// sd is the standard deviation of each predictor (nil: not known): with
+	// it, implausibly large coefficients are probed for divergence.
+	sd []float64
+	// rows are the data (nil for partitions): with them a separation is
+	// described with the data facts behind it.
+	rows *Data
+}
 
+// localSource is the source of a fit of the rows of d, evaluated by pr.
+func localSource(d *Data, pr *problem) *source {
+	return &source{
+		predictors: d.Predictors, levels: d.levels(), J: d.J, nobs: d.nobs(), nrows: d.N(),
+		fitted: func(theta []float64) (float64, int, error) {
+			minP, neg := pr.fittedCheck(theta)
+			return minP, neg, nil
+		},
+		loglik:   pr.evaluator(false),
+		expected: pr.expectedHessian,
+		sd:       predictorSD(d),
+		rows:     d,
+	}
+}
+
+// expectedHessian is the expected second derivatives at theta.
+func (p *problem) expectedHessian(theta []float64) []float64 {
+	return p.hessian(theta, p.evaluate(theta, 2, true), false)
+}
+
+// finish turns the Newton state of model m into a result: the status and
+// its message, the information criteria, the covariance and the standard
+// errors. Every fit ends here, local, constrained or partitioned; fits
+// whose common factor is not identified then adjust the result
+// (markIdentification, normalizedFit) through settleNotIdentified.
+func finish(src *source, m Model, ly *layout, st newtonState, opt Options) (*Result, error) {
+	// Phase 1: the estimates as reached.
+	r := src.newResult(m, ly, st)
+	var err error
+	if r.MinFittedProb, r.NegativeRows, err = src.fitted(st.theta); err != nil {
+		return nil, err
+	}
 	if math.IsInf(st.ll, -1) {
-		r.Status = StatusNotConverged
-		r.Message = "no valid starting point: " + st.reason
-		r.LogLik = math.NaN()
-		return r
+		return r.fail(StatusNotConverged, "no valid starting point: "+st.reason), nil
 	}
-	// Information and its conditioning.
-	info := make([]float64, P*P)
-	for i := range info {
-		info[i] = -st.hess[i]
-	}
-	cond, minVec, pd := scaledCondition(info, P)
-	r.Condition = cond
-	singular := !pd || cond > conditionLimit || (cond > 1e5 && pr.rayRises(st.theta, st.ll, minVec, info))
-	if !singular && pr.suspectDivergence(st.theta, d) {
-		// Large coefficients: look for a direction along which the
-		// likelihood keeps rising (separation that leaves the scaled
-		// information well conditioned): the weakest direction, each
-		// parameter's axis, and the estimates themselves.
-		if v := pr.risingDirection(st.theta, st.ll, minVec, info); v != nil {
-			singular, minVec = true, v
-		}
-	}
+	// Phase 2: is the maximum finite, and was it reached?
+	info := negated(st.hess)
+	singular, dir := src.certify(r, ly, st, info)
 	switch {
 	case singular:
-		r.Status = StatusNoFiniteMaximum
-		r.Separation = describeSeparation(d, m, ly, minVec, st.theta)
-		r.Message = separationMessage(r, st)
-		r.LogLik = math.NaN()
-		return r
+		r.Separation = src.describeSeparation(ly, dir)
+		return r.fail(StatusNoFiniteMaximum, separationMessage(r, st)), nil
 	case !st.converged:
-		r.Status = StatusNotConverged
-		r.Message = fmt.Sprintf("Newton-Raphson stopped after %d iterations: %s (max |score| %.3g)", st.iters, st.reason, r.MaxAbsScore)
-		r.LogLik = math.NaN()
-		return r
+		return r.fail(StatusNotConverged, fmt.Sprintf("Newton-Raphson stopped after %d iterations: %s (max |score| %.3g)", st.iters, st.reason, r.MaxAbsScore)), nil
 	}
+	// Phase 3: criteria, covariance and standard errors.
 	r.Status = StatusOK
 	if r.NegativeRows > 0 {
 		r.Status = StatusNegativeProbs
 		r.Message = fmt.Sprintf("%d of %d rows have a negative predicted category probability (crossing cumulative probabilities)", r.NegativeRows, r.NRows)
 	}
-	r.AIC = -2*r.LogLik + 2*float64(P)
-	r.BIC = -2*r.LogLik + math.Log(r.NObs)*float64(P)
-	r.CovType = CovOIM
-	cinfo := info
+	r.setCriteria(st.ll)
+	r.CovType = covarianceType(opt)
+	if r.CovType == CovEIM {
+		info = negated(src.expected(st.theta))
+	}
+	cov, err := invertSym(info, r.NParams)
+	if err != nil {
+		return r.fail(StatusNoFiniteMaximum, "the information matrix cannot be inverted at the maximum: parameters are not identified"), nil
+	}
+	r.setCovariance(cov, nil, r.CovType)
+	return r, nil
+}
+
+// newResult is the result of model m at the Newton state, before any
+// verdict: the estimates, their names and the score summary.
+func (src *source) newResult(m Model, ly *layout, st newtonState) *Result {
+	r := &Result{
+		Model: m, Name: m.Name(), Predictors: src.predictors, Levels: src.levels, J: src.J,
+		Converged: st.converged, Iterations: st.iters, Reason: st.reason,
+		NObs: src.nobs, NRows: src.nrows, NParams: len(ly.params),
+		ParamNames: ly.names(), Estimates: st.theta, Decrement: st.decrement,
+		LogLik: st.ll, SupLogLik: st.ll,
+	}
+	ly.fillEstimates(r, m, st)
+	return r
+}
+
+// fail ends r with a status that has no usable maximum: the message says
+// why, and the log-likelihood is NaN (SupLogLik keeps the value reached).
+func (r *Result) fail(s Status, msg string) *Result {
+	r.Status, r.Message, r.LogLik = s, msg, math.NaN()
+	return r
+}
+
+// setCriteria sets the log-likelihood at the maximum and the information
+// criteria it implies.
+func (r *Result) setCriteria(ll float64) {
+	P := float64(r.NParams)
+	r.LogLik = ll
+	r.AIC = -2*ll + 2*P
+	r.BIC = -2*ll + math.Log(r.NObs)*P
+}
+
+// covarianceType is the kind of information the covariance comes from.
+func covarianceType(opt Options) string {
 	if opt.Covariance == CovEIM {
-		r.CovType = CovEIM
-		a := pr.evaluate(st.theta, 2, true)
-		H := pr.hessian(st.theta, a, false)
-		for i := range cinfo {
-			cinfo[i] = -H[i]
+		return CovEIM
+	}
+	return CovOIM
+}
+
+// setCovariance sets the covariance (NParams x NParams, row-major) and the
+// standard errors; parameters marked in drop (nil: none) get NaN in both.
+func (r *Result) setCovariance(cov []float64, drop []bool, covType string) {
+	P := r.NParams
+	r.CovType = covType
+	r.StdErrors = make([]float64, P)
+	if drop == nil {
+		r.Cov = cov
+		for i := range r.StdErrors {
+			r.StdErrors[i] = math.Sqrt(cov[i*P+i])
+		}
+		return
+	}
+	r.Cov = make([]float64, P*P)
+	for i := 0; i < P; i++ {
+		r.StdErrors[i] = math.NaN()
+		if !drop[i] {
+			r.StdErrors[i] = math.Sqrt(cov[i*P+i])
+		}
+		for j := 0; j < P; j++ {
+			r.Cov[i*P+j] = math.NaN()
+			if !drop[i] && !drop[j] {
+				r.Cov[i*P+j] = cov[i*P+j]
+			}
 		}
 	}
-	cov, err := invertSym(cinfo, P)
-	if err != nil {
-		r.Status = StatusNoFiniteMaximum
-		r.Message = "the information matrix cannot be inverted at the maximum: parameters are not identified"
-		r.LogLik = math.NaN()
-		return r
+}
+
+// settleNotIdentified turns r into the result of a maximum at which some
+// parameters (drop) are not determined: the log-likelihood ll is the
+// maximum, the covariance cov (NParams x NParams; the rows and columns of
+// dropped parameters are ignored) gives the errors of the others, and the
+// message gives the reasons, then what the result reports in their place.
+func (r *Result) settleNotIdentified(ll float64, cov []float64, drop []bool, covType string, why []string, reported string) {
+	r.Status = StatusNotIdentified
+	r.Separation = nil
+	r.Converged = true // the identified parameters are at their maximum
+	r.setCriteria(ll)
+	r.SupLogLik = ll
+	r.setCovariance(cov, drop, covType)
+	r.Message = strings.Join(why, "; ") + fmt.Sprintf("; the log-likelihood %.6f is the maximum; %s", ll, reported)
+	if r.NegativeRows > 0 {
+		r.Message += fmt.Sprintf("; %d of %d rows have a negative predicted category probability", r.NegativeRows, r.NRows)
 	}
-	r.Cov = cov
-	r.StdErrors = make([]float64, P)
-	for i := 0; i < P; i++ {
-		r.StdErrors[i] = math.Sqrt(cov[i*P+i])
+}
+
+// negated returns -A.
+func negated(A []float64) []float64 {
+	out := make([]float64, len(A))
+	for i, v := range A {
+		out[i] = -v
 	}
-	return r
+	return out
+}
+
+// certify sets r.Condition and reports whether the information at the end
+// of the iterations is singular, or the log-likelihood keeps rising along
+// some direction (separation), with that direction in scaled coordinates.
+func (src *source) certify(r *Result, ly *layout, st newtonState, info []float64) (bool, []float64) {
+	cond, minVec, pd := scaledCondition(info, r.NParams)
+	r.Condition = cond
+	if !pd || cond > conditionLimit {
+		return true, minVec
+	}
+	if cond > 1e5 && rayRises(src.loglik, st.theta, st.ll, minVec, info) {
+		return true, minVec
+	}
+	if src.sd != nil && suspectDivergence(ly, st.theta, src.sd) {
+		// Large coefficients: look for a direction along which the
+		// likelihood keeps rising (separation that leaves the scaled
+		// information well conditioned): the weakest direction, each
+		// parameter's axis, and the estimates themselves.
+		if v := risingDirection(src.loglik, st.theta, st.ll, minVec, info); v != nil {
+			return true, v
+		}
+	}
+	return false, minVec
 }
 
 // fillEstimates sets the score summary, cutpoints, effects matrix and
@@ -179,7 +304,7 @@ func (p *problem) linearRow(c *coefs, xi []float64, off float64, L []float64) {
 // (100 units of 1/sqrt(information diagonal)) along the direction of least
 // information, either way: the sign of a recession direction (separation)
 // rather than a finite but poorly determined maximum.
-func (p *problem) rayRises(theta []float64, ll float64, vec, info []float64) bool {
+func rayRises(loglik evalFunc, theta []float64, ll float64, vec, info []float64) bool {
 	if vec == nil {
 		return false
 	}
@@ -193,7 +318,7 @@ func (p *problem) rayRises(theta []float64, ll float64, vec, info []float64) boo
 		step[i] = 100 * s * vec[i]
 	}
 	for _, sign := range []float64{1, -1} {
-		a := p.evaluate(addScaled(theta, step, sign), 0, false)
+		a := loglik(addScaled(theta, step, sign), 0)
 		if !a.bad && a.ll >= ll-1e-9*math.Max(1, math.Abs(ll)) {
 			return true
 		}
@@ -204,9 +329,8 @@ func (p *problem) rayRises(theta []float64, ll float64, vec, info []float64) boo
 // suspectDivergence reports whether some coefficient is implausibly large:
 // a slope moving the linear predictor by more than 10 per standard
 // deviation of its predictor, or a cutpoint beyond 15 in absolute value.
-func (p *problem) suspectDivergence(theta []float64, d *Data) bool {
-	sd := predictorSD(d)
-	for i, pa := range p.ly.params {
+func suspectDivergence(ly *layout, theta, sd []float64) bool {
+	for i, pa := range ly.params {
 		v := math.Abs(theta[i])
 		switch pa.kind {
 		case pCut:
@@ -225,20 +349,20 @@ func (p *problem) suspectDivergence(theta []float64, d *Data) bool {
 // risingDirection tries the weakest direction of the information, each
 // parameter's axis and the direction of the estimates; it returns the first
 // (in scaled coordinates) along which the log-likelihood does not fall.
-func (p *problem) risingDirection(theta []float64, ll float64, minVec, info []float64) []float64 {
+func risingDirection(loglik evalFunc, theta []float64, ll float64, minVec, info []float64) []float64 {
 	P := len(theta)
-	if minVec != nil && p.rayRises(theta, ll, minVec, info) {
+	if minVec != nil && rayRises(loglik, theta, ll, minVec, info) {
 		return minVec
 	}
 	for i := 0; i < P; i++ {
 		e := make([]float64, P)
 		e[i] = 1
-		if p.rayRises(theta, ll, e, info) {
+		if rayRises(loglik, theta, ll, e, info) {
 			return e
 		}
 	}
 	// The estimates scaled up: complete separation.
-	a := p.evaluate(addScaled(theta, theta, 1), 0, false)
+	a := loglik(addScaled(theta, theta, 1), 0)
 	if !a.bad && a.ll >= ll-1e-9*math.Max(1, math.Abs(ll)) {
 		v := make([]float64, P)
 		for i := range v {
@@ -330,18 +454,27 @@ func invertSym(A []float64, P int) ([]float64, error) {
 }
 
 // describeSeparation names the parameters along the direction in which the
-// information vanishes, and finds categories that occur at one value only
-// of the predictors involved.
-func describeSeparation(d *Data, m Model, ly *layout, vec []float64, theta []float64) *Separation {
+// information vanishes and, when the rows are at hand, finds categories that
+// occur at one value only of a predictor.
+func (src *source) describeSeparation(ly *layout, vec []float64) *Separation {
 	s := &Separation{}
 	if vec == nil {
 		return s
 	}
+	s.nameDirection(ly, vec, src.predictors, src.levels)
+	if src.rows != nil {
+		s.addEvidence(src.rows)
+	}
+	return s
+}
+
+// nameDirection lists the parameters that carry a quarter or more of the
+// direction vec, and the predictors and category boundaries they belong to.
+func (s *Separation) nameDirection(ly *layout, vec []float64, predictors, levels []string) {
 	maxv := 0.0
 	for _, v := range vec {
 		maxv = math.Max(maxv, math.Abs(v))
 	}
-	lv := d.levels()
 	preds := map[int]bool{}
 	bounds := map[int]bool{}
 	for i, v := range vec {
@@ -358,24 +491,18 @@ func describeSeparation(d *Data, m Model, ly *layout, vec []float64, theta []flo
 			preds[p.k] = true
 		}
 	}
-	var ks []int
-	for k := range preds {
-		ks = append(ks, k)
+	for _, k := range sortedKeys(preds) {
+		s.Predictors = append(s.Predictors, predictors[k])
 	}
-	sort.Ints(ks)
-	for _, k := range ks {
-		s.Predictors = append(s.Predictors, d.Predictors[k])
+	for _, b := range sortedKeys(bounds) {
+		s.Boundaries = append(s.Boundaries, levels[b]+"|"+levels[b+1])
 	}
-	var bs []int
-	for b := range bounds {
-		bs = append(bs, b)
-	}
-	sort.Ints(bs)
-	for _, b := range bs {
-		s.Boundaries = append(s.Boundaries, lv[b]+"|"+lv[b+1])
-	}
-	// Data evidence: a category observed at a single value of a predictor
-	// that takes several values.
+}
+
+// addEvidence adds the data facts behind a separation: a category observed
+// at a single value of a predictor that takes several (at most 10) values.
+func (s *Separation) addEvidence(d *Data) {
+	lv := d.levels()
 	K := len(d.Predictors)
 	for k := 0; k < K; k++ {
 		all := map[float64]bool{}
@@ -398,13 +525,20 @@ func describeSeparation(d *Data, m Model, ly *layout, vec []float64, theta []flo
 				for v := range per[c] {
 					s.Evidence = append(s.Evidence, fmt.Sprintf("category %q occurs only at %s = %g", lv[c], d.Predictors[k], v))
 				}
-				if !preds[k] {
-					s.Predictors = appendUnique(s.Predictors, d.Predictors[k])
-				}
+				s.Predictors = appendUnique(s.Predictors, d.Predictors[k])
 			}
 		}
 	}
-	return s
+}
+
+// sortedKeys returns the keys of a set of indices in increasing order.
+func sortedKeys(set map[int]bool) []int {
+	keys := make([]int, 0, len(set))
+	for k := range set {
+		keys = append(keys, k)
+	}
+	sort.Ints(keys)
+	return keys
 }
 
 func appendUnique(xs []string, x string) []string {

@@ -168,7 +168,15 @@ func Fit(d *Data, m Model, opt Options) (*Result, error) {
 		start = startValues(d, m, ly)
 	}
 	st := pr.newton(start, opt.MaxIter, opt.Scoring)
-	return finish(d, m, ly, pr, st, opt), nil
+	return finish(localSource(d, pr), m, ly, st, opt)
+}
+
+// weight is the frequency weight of row i.
+func (d *Data) weight(i int) float64 {
+	if d.Weights == nil {
+		return 1
+	}
+	return d.Weights[i]
 }
 
 func (d *Data) nobs() float64 {

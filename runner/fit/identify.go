@@ -33,14 +33,38 @@ const (
 // log-likelihood is kept, phi is NaN, and the other standard errors come
 // from the information without that group's phi and gamma (holding its
 // slopes at their estimates). Large but determined phi get a note.
-func markIdentification(r *Result, d *Data, ly *layout, pr *problem, st *newtonState, sd []float64, opt Options) {
+func markIdentification(r *Result, ly *layout, pr *problem, st *newtonState, sd []float64, opt Options) {
 	if math.IsInf(st.ll, -1) {
 		return
 	}
-	q := d.J - 1
-	P := len(ly.params)
-	var bad []int
-	var why []string
+	bad, why := diagnosePhi(r, ly, st, sd)
+	if len(bad) == 0 {
+		return
+	}
+	drop := unidentifiedParams(ly, bad)
+	cov, problem := identifiedCovariance(ly, pr, st, drop, opt)
+	if problem != "" {
+		// Something else is not determined either (e.g. separation), or the
+		// identified part is not at its maximum: keep the engine's verdict
+		// and add the phi diagnosis.
+		r.Message = strings.Join(why, "; ") + problem + r.Message
+		return
+	}
+	r.Estimates = append([]float64(nil), r.Estimates...)
+	for _, g := range bad {
+		for j := 1; j < ly.J-1; j++ {
+			r.Estimates[ly.phiIndex[g][j]] = math.NaN()
+			r.Phi[g][j] = math.NaN()
+		}
+	}
+	r.settleNotIdentified(st.ll, cov, drop, covarianceType(opt), why, "phi is reported as NaN and the other standard errors hold these slopes at their estimates")
+}
+
+// diagnosePhi returns the constraint groups whose phi the maximum st does
+// not determine, with the reason for each, and adds a note to r for a phi
+// that is determined but large.
+func diagnosePhi(r *Result, ly *layout, st *newtonState, sd []float64) (bad []int, why []string) {
+	q := ly.J - 1
 	for g, ks := range ly.groups {
 		ph := ly.phi(st.theta, g)
 		gs, pm := 0.0, 0.0
@@ -77,19 +101,30 @@ func markIdentification(r *Result, d *Data, ly *layout, pr *problem, st *newtonS
 			r.PhiNotes = append(r.PhiNotes, fmt.Sprintf("phi %s: the slopes of equation 1 are small relative to equation %d (|phi_%d| = %.3g); phi normalized by equation %d (PhiNormalized) is easier to read", name, maxRef+1, maxRef+1, pm, maxRef+1))
 		}
 	}
-	if len(bad) == 0 {
-		return
-	}
-	// Parameters kept: all but phi and gamma of the unidentified groups.
-	drop := make([]bool, P)
+	return bad, why
+}
+
+// unidentifiedParams marks phi and gamma of the groups bad.
+func unidentifiedParams(ly *layout, bad []int) []bool {
+	drop := make([]bool, len(ly.params))
 	for _, g := range bad {
-		for j := 1; j < q; j++ {
+		for j := 1; j < ly.J-1; j++ {
 			drop[ly.phiIndex[g][j]] = true
 		}
 		for _, k := range ly.groups[g] {
 			drop[ly.slope[k]] = true
 		}
 	}
+	return drop
+}
+
+// identifiedCovariance inverts the information of the parameters not in
+// drop, holding the dropped ones at their estimates, and returns it in the
+// full parameter order (the dropped rows and columns zero). When those
+// parameters are not determined either, or not at their maximum, it says
+// so instead (a phrase that ends the diagnosis).
+func identifiedCovariance(ly *layout, pr *problem, st *newtonState, drop []bool, opt Options) ([]float64, string) {
+	P := len(ly.params)
 	var keep []int
 	for i := 0; i < P; i++ {
 		if !drop[i] {
@@ -98,8 +133,7 @@ func markIdentification(r *Result, d *Data, ly *layout, pr *problem, st *newtonS
 	}
 	H := st.hess
 	if opt.Covariance == CovEIM {
-		a := pr.evaluate(st.theta, 2, true)
-		H = pr.hessian(st.theta, a, false)
+		H = pr.expectedHessian(st.theta)
 	}
 	nk := len(keep)
 	sub := make([]float64, nk*nk)
@@ -110,62 +144,28 @@ func markIdentification(r *Result, d *Data, ly *layout, pr *problem, st *newtonS
 			sub[a*nk+b] = -H[i*P+j]
 		}
 	}
-	var cov []float64
-	if nk > 0 {
-		cond, _, pd := scaledCondition(sub, nk)
-		if !pd || cond > conditionLimit {
-			// Something else is not determined either (e.g. separation):
-			// keep the engine's verdict and add the phi diagnosis.
-			r.Message = strings.Join(why, "; ") + ". " + r.Message
-			return
-		}
-		c, err := invertSym(sub, nk)
-		if err != nil {
-			r.Message = strings.Join(why, "; ") + ". " + r.Message
-			return
-		}
-		// The identified part must be at its maximum.
-		if dec := dot(gk, symMulVec(c, gk)); dec > 1e-8*math.Max(1, math.Abs(st.ll)) {
-			r.Message = strings.Join(why, "; ") + fmt.Sprintf(" (and the other parameters are not at a maximum: Newton decrement %.2g). ", dec) + r.Message
-			return
-		}
-		cov = c
+	cov := make([]float64, P*P)
+	if nk == 0 {
+		return cov, ""
 	}
-	r.Status = StatusNotIdentified
-	r.Separation = nil
-	r.Converged = true // the identified parameters are at their maximum
-	r.LogLik = st.ll
-	r.AIC = -2*r.LogLik + 2*float64(P)
-	r.BIC = -2*r.LogLik + math.Log(r.NObs)*float64(P)
-	r.CovType = CovOIM
-	if opt.Covariance == CovEIM {
-		r.CovType = CovEIM
+	cond, _, pd := scaledCondition(sub, nk)
+	if !pd || cond > conditionLimit {
+		return nil, ". "
 	}
-	r.Cov = make([]float64, P*P)
-	r.StdErrors = make([]float64, P)
-	for i := range r.Cov {
-		r.Cov[i] = math.NaN()
+	c, err := invertSym(sub, nk)
+	if err != nil {
+		return nil, ". "
 	}
-	for i := range r.StdErrors {
-		r.StdErrors[i] = math.NaN()
+	// The identified part must be at its maximum.
+	if dec := dot(gk, symMulVec(c, gk)); dec > 1e-8*math.Max(1, math.Abs(st.ll)) {
+		return nil, fmt.Sprintf(" (and the other parameters are not at a maximum: Newton decrement %.2g). ", dec)
 	}
 	for a, i := range keep {
 		for b, j := range keep {
-			r.Cov[i*P+j] = cov[a*nk+b]
-		}
-		r.StdErrors[i] = math.Sqrt(cov[a*nk+a])
-	}
-	r.Estimates = append([]float64(nil), r.Estimates...)
-	for _, g := range bad {
-		for j := 1; j < q; j++ {
-			r.Estimates[ly.phiIndex[g][j]] = math.NaN()
-			r.Phi[g][j] = math.NaN()
+			cov[i*P+j] = c[a*nk+b]
 		}
 	}
-	r.Message = strings.Join(why, "; ") + fmt.Sprintf("; the log-likelihood %.6f is the maximum; phi is reported as NaN and the other standard errors hold these slopes at their estimates", r.LogLik)
-	if r.NegativeRows > 0 {
-		r.Message += fmt.Sprintf("; %d of %d rows have a negative predicted category probability", r.NegativeRows, r.NRows)
-	}
+	return cov, ""
 }
 
 // PhiNormalized rescales the common factor of constraint group g (0-based,

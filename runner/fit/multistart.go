@@ -3,7 +3,6 @@ package fit
 import (
 	"fmt"
 	"math"
-	"strings"
 )
 
 // StatusNotIdentified: the log-likelihood has a finite maximum, but the
@@ -148,9 +147,13 @@ func multiStart(d *Data, m Model, ly *layout, pr *problem, opt Options) (*Result
 		}
 	}
 	best := runs[bestRun(runs)].st
-	res := finish(d, m, ly, pr, *best, opt)
+	src := localSource(d, pr)
+	res, err := finish(src, m, ly, *best, opt)
+	if err != nil {
+		return nil, err
+	}
 	if refs := ridgeRefs(res, ly, best, aux.sd); refs != nil {
-		if alt, st := aux.normalizedFit(d, m, ly, pr, res, best, refs, opt); alt != nil {
+		if alt, st := aux.normalizedFit(src, d, m, ly, pr, res, best, refs, opt); alt != nil {
 			res, best = alt, st
 		}
 	}
@@ -169,7 +172,7 @@ func multiStart(d *Data, m Model, ly *layout, pr *problem, opt Options) (*Result
 		}
 	}
 	if res.Status != StatusNotIdentified {
-		markIdentification(res, d, ly, pr, best, aux.sd, opt)
+		markIdentification(res, ly, pr, best, aux.sd, opt)
 	}
 	return res, nil
 }
@@ -222,7 +225,7 @@ func ridgeRefs(res *Result, ly *layout, st *newtonState, sd []float64) []int {
 // normalized by the equation with the largest slopes. It returns nil when
 // the maximum is not a regular one in that normalization either. The state
 // returned is the one the result describes.
-func (a *auxiliary) normalizedFit(d *Data, m Model, ly *layout, pr *problem, res *Result, st *newtonState, refs []int, opt Options) (*Result, *newtonState) {
+func (a *auxiliary) normalizedFit(src *source, d *Data, m Model, ly *layout, pr *problem, res *Result, st *newtonState, refs []int, opt Options) (*Result, *newtonState) {
 	rm := newRankMap(ly, a.pLy, m.Effects, refs)
 	pp := newProblem(d.design(), a.partM, a.pLy, opt.Workers)
 	ast := rm.newton(pp, rm.fromStandard(st.theta), opt.MaxIter)
@@ -238,7 +241,9 @@ func (a *auxiliary) normalizedFit(d *Data, m Model, ly *layout, pr *problem, res
 	if representable {
 		nst := pr.newton(rm.toStandard(ast.theta), opt.MaxIter, opt.Scoring)
 		if nst.converged && nst.ll >= ast.ll-sameLL {
-			return finish(d, m, ly, pr, nst, opt), &nst
+			if r, err := finish(src, m, ly, nst, opt); err == nil {
+				return r, &nst
+			}
 		}
 	}
 	P := len(ly.params)
@@ -246,13 +251,9 @@ func (a *auxiliary) normalizedFit(d *Data, m Model, ly *layout, pr *problem, res
 	hth := rm.h(ast.theta)
 	H := ast.hess
 	if opt.Covariance == CovEIM {
-		e := pp.evaluate(hth, 2, true)
-		_, H = rm.chain(ast.theta, make([]float64, len(hth)), pp.hessian(hth, e, false))
+		_, H = rm.chain(ast.theta, make([]float64, len(hth)), pp.expectedHessian(hth))
 	}
-	info := make([]float64, P*P)
-	for i := range info {
-		info[i] = -H[i]
-	}
+	info := negated(H)
 	cond, _, pd := scaledCondition(info, P)
 	if !pd || cond > conditionLimit {
 		return nil, nil
@@ -262,14 +263,8 @@ func (a *auxiliary) normalizedFit(d *Data, m Model, ly *layout, pr *problem, res
 		return nil, nil
 	}
 	r := *res
-	r.Status = StatusNotIdentified
-	r.Separation = nil
-	r.Converged = true
 	r.Iterations = st.iters + ast.iters
 	r.Reason = "converged"
-	r.LogLik, r.SupLogLik = ast.ll, ast.ll
-	r.AIC = -2*r.LogLik + 2*float64(P)
-	r.BIC = -2*r.LogLik + math.Log(r.NObs)*float64(P)
 	r.MaxAbsScore = 0
 	for _, g := range ast.grad {
 		r.MaxAbsScore = math.Max(r.MaxAbsScore, math.Abs(g))
@@ -277,10 +272,6 @@ func (a *auxiliary) normalizedFit(d *Data, m Model, ly *layout, pr *problem, res
 	r.Decrement = ast.decrement
 	r.Condition = cond
 	r.MinFittedProb, r.NegativeRows = pp.fittedCheck(hth)
-	r.CovType = CovOIM
-	if opt.Covariance == CovEIM {
-		r.CovType = CovEIM
-	}
 	r.Cutpoints = make([]float64, q)
 	for j := range r.Cutpoints {
 		r.Cutpoints[j] = hth[a.pLy.cut[j]]
@@ -333,24 +324,7 @@ func (a *auxiliary) normalizedFit(d *Data, m Model, ly *layout, pr *problem, res
 		r.PhiOther = append(r.PhiOther, alt)
 		why = append(why, fmt.Sprintf("phi %s is not identified in the normalization phi_1 = 1: at the maximum its slopes in equation 1 vanish (phi_1 = %.2g when phi_%d = 1), so phi_m = b_m / b_1 is unbounded; PhiOther gives phi normalized by equation %d", groupLabel(ly, g), alt.Phi[0], refs[g]+1, refs[g]+1))
 	}
-	r.Cov = make([]float64, P*P)
-	r.StdErrors = make([]float64, P)
-	for i := 0; i < P; i++ {
-		r.StdErrors[i] = math.NaN()
-		if !drop[i] {
-			r.StdErrors[i] = math.Sqrt(cov[i*P+i])
-		}
-		for j := 0; j < P; j++ {
-			r.Cov[i*P+j] = math.NaN()
-			if !drop[i] && !drop[j] {
-				r.Cov[i*P+j] = cov[i*P+j]
-			}
-		}
-	}
-	r.Message = strings.Join(why, "; ") + fmt.Sprintf("; the log-likelihood %.6f is the maximum; gamma is reported as the equation-1 slopes (zero) and phi as NaN", r.LogLik)
-	if r.NegativeRows > 0 {
-		r.Message += fmt.Sprintf("; %d of %d rows have a negative predicted category probability", r.NegativeRows, r.NRows)
-	}
+	r.settleNotIdentified(ast.ll, cov, drop, covarianceType(opt), why, "gamma is reported as the equation-1 slopes (zero) and phi as NaN")
 	return &r, &ast
 }
 

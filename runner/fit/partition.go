@@ -80,6 +80,77 @@ type Whole struct {
 	Levels     []string
 	Counts     []float64 // weighted count of each category
 	Rows       int
+	// Spread of the predictors over all partitions (nil: not known). With
+	// it, a fit whose coefficients grow implausibly large is probed for a
+	// direction of rising likelihood, as a local fit is.
+	Spread *Spread
+}
+
+// Spread is the weighted mean and sum of squared deviations of each
+// predictor over a set of rows. The spreads of partitions merge into the
+// spread of their union.
+type Spread struct {
+	Weight float64   `json:"weight"`
+	Mean   []float64 `json:"mean"`
+	SS     []float64 `json:"ss"` // sum of w (x - mean)^2
+}
+
+// SpreadOf is the spread of the predictors over the rows of d.
+func SpreadOf(d *Data) *Spread {
+	K := len(d.Predictors)
+	s := &Spread{Mean: make([]float64, K), SS: make([]float64, K)}
+	for i := range d.Y {
+		w := d.weight(i)
+		s.Weight += w
+		for k := 0; k < K; k++ {
+			s.Mean[k] += w * d.X[i*K+k]
+		}
+	}
+	for k := range s.Mean {
+		s.Mean[k] /= s.Weight
+	}
+	for i := range d.Y {
+		w := d.weight(i)
+		for k := 0; k < K; k++ {
+			v := d.X[i*K+k] - s.Mean[k]
+			s.SS[k] += w * v * v
+		}
+	}
+	return s
+}
+
+// Merge adds the rows summarized by o to s (the pairwise update of means
+// and sums of squares, exact up to rounding).
+func (s *Spread) Merge(o *Spread) {
+	if o.Weight == 0 {
+		return
+	}
+	if s.Weight == 0 {
+		s.Weight = o.Weight
+		s.Mean = append([]float64(nil), o.Mean...)
+		s.SS = append([]float64(nil), o.SS...)
+		return
+	}
+	tot := s.Weight + o.Weight
+	for k := range s.Mean {
+		delta := o.Mean[k] - s.Mean[k]
+		s.SS[k] += o.SS[k] + delta*delta*s.Weight*o.Weight/tot
+		s.Mean[k] += delta * o.Weight / tot
+	}
+	s.Weight = tot
+}
+
+// SD is the weighted standard deviation of each predictor (1 for a
+// constant one, so that it can scale a coefficient).
+func (s *Spread) SD() []float64 {
+	sd := make([]float64, len(s.SS))
+	for k := range sd {
+		sd[k] = math.Sqrt(s.SS[k] / s.Weight)
+		if sd[k] == 0 {
+			sd[k] = 1
+		}
+	}
+	return sd
 }
 
 // FitFromSums fits model m by the Newton engine with the log-likelihood
@@ -110,6 +181,9 @@ func FitFromSums(w Whole, m Model, sums func(theta []float64, order int) (*Sums,
 	if len(constrainedPredictors(m)) > 0 {
 		return nil, inputErr("partitioned fits of constrained models are not available (their multi-start search needs the rows): fit %s locally", m.Name())
 	}
+	if opt.Covariance == CovEIM {
+		return nil, inputErr("partitioned fits give observed-information errors only (covariance %q): the expected information needs the rows", CovOIM)
+	}
 	if opt.MaxIter <= 0 {
 		opt.MaxIter = 200
 	}
@@ -138,55 +212,25 @@ func FitFromSums(w Whole, m Model, sums func(theta []float64, order int) (*Sums,
 	if evalErr != nil {
 		return nil, evalErr
 	}
-	P := len(ly.params)
-	r := &Result{Model: m, Name: m.Name(), Predictors: w.Predictors, Levels: cd.levelsOr(w.Levels), J: w.J,
-		Converged: st.converged, Iterations: st.iters, Reason: st.reason, NObs: nobs, NRows: w.Rows, NParams: P,
-		ParamNames: ly.names(), Estimates: st.theta, Decrement: st.decrement, LogLik: st.ll, SupLogLik: st.ll}
-	ly.fillEstimates(r, m, st)
-	if diag != nil {
-		if r.NegativeRows, r.MinFittedProb, err = diag(st.theta); err != nil {
-			return nil, err
-		}
+	src := &source{
+		predictors: w.Predictors, levels: cd.levelsOr(w.Levels), J: w.J, nobs: nobs, nrows: w.Rows,
+		fitted: func(theta []float64) (float64, int, error) {
+			if diag == nil {
+				return 0, 0, nil
+			}
+			neg, minP, err := diag(theta)
+			return minP, neg, err
+		},
+		loglik: ev,
 	}
-	if math.IsInf(st.ll, -1) {
-		r.Status, r.Message, r.LogLik = StatusNotConverged, "no valid starting point: "+st.reason, math.NaN()
-		return r, nil
+	if w.Spread != nil {
+		src.sd = w.Spread.SD()
 	}
-	info := make([]float64, P*P)
-	for i := range info {
-		info[i] = -st.hess[i]
+	r, err := finish(src, m, ly, st, opt)
+	if err == nil && evalErr != nil {
+		err = evalErr
 	}
-	cond, _, pd := scaledCondition(info, P)
-	r.Condition = cond
-	switch {
-	case !pd || cond > conditionLimit:
-		r.Status, r.LogLik = StatusNoFiniteMaximum, math.NaN()
-		r.Message = fmt.Sprintf("no finite maximum likelihood estimate: the information is singular at the end of the iterations (condition %.2g); the log-likelihood approaches %.6f", cond, st.ll)
-		return r, nil
-	case !st.converged:
-		r.Status, r.LogLik = StatusNotConverged, math.NaN()
-		r.Message = fmt.Sprintf("Newton-Raphson stopped after %d iterations: %s", st.iters, st.reason)
-		return r, nil
-	}
-	r.Status = StatusOK
-	if r.NegativeRows > 0 {
-		r.Status = StatusNegativeProbs
-		r.Message = fmt.Sprintf("%d of %d rows have a negative predicted category probability (crossing cumulative probabilities)", r.NegativeRows, r.NRows)
-	}
-	r.AIC = -2*r.LogLik + 2*float64(P)
-	r.BIC = -2*r.LogLik + math.Log(nobs)*float64(P)
-	cov, err := invertSym(info, P)
-	if err != nil {
-		r.Status, r.LogLik = StatusNoFiniteMaximum, math.NaN()
-		r.Message = "the information matrix cannot be inverted at the maximum"
-		return r, nil
-	}
-	r.Cov, r.CovType = cov, CovOIM
-	r.StdErrors = make([]float64, P)
-	for i := range r.StdErrors {
-		r.StdErrors[i] = math.Sqrt(cov[i*P+i])
-	}
-	return r, nil
+	return r, err
 }
 
 func (d *Data) levelsOr(l []string) []string {

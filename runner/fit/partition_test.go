@@ -5,51 +5,62 @@ import (
 	"testing"
 )
 
-// A fit whose log-likelihood is summed over four partitions equals the
-// local fit to 1e-8 (General Social Survey extract, Long 1997).
-func TestPartitionedFitEqualsLocal(t *testing.T) {
-	d := gssData(t)
+// partitioned fits d by FitFromSums with the log-likelihood summed over
+// nparts partitions of its rows, as a queue of workers would.
+func partitioned(t *testing.T, d *Data, m Model, nparts int, opt Options) *Result {
+	t.Helper()
 	K := len(d.Predictors)
 	n := d.N()
 	var parts []*Data
-	for p := 0; p < 4; p++ {
-		lo, hi := p*n/4, (p+1)*n/4
+	for p := 0; p < nparts; p++ {
+		lo, hi := p*n/nparts, (p+1)*n/nparts
 		parts = append(parts, &Data{J: d.J, Predictors: d.Predictors, Y: d.Y[lo:hi], X: d.X[lo*K : hi*K]})
 	}
 	counts := make([]float64, d.J)
 	for _, y := range d.Y {
 		counts[y]++
 	}
-	w := Whole{J: d.J, Predictors: d.Predictors, Counts: counts, Rows: n}
+	w := Whole{J: d.J, Predictors: d.Predictors, Levels: d.Levels, Counts: counts, Rows: n, Spread: &Spread{}}
+	for _, p := range parts {
+		w.Spread.Merge(SpreadOf(p))
+	}
+	sums := func(theta []float64, order int) (*Sums, error) {
+		total := &Sums{}
+		for _, p := range parts {
+			s, err := PartitionSums(p, m, theta, order)
+			if err != nil {
+				return nil, err
+			}
+			total.Add(s)
+		}
+		return total, nil
+	}
+	diag := func(theta []float64) (int, float64, error) {
+		neg, minP := 0, math.Inf(1)
+		for _, p := range parts {
+			k, mp, err := PartitionDiagnostics(p, m, theta)
+			if err != nil {
+				return 0, 0, err
+			}
+			neg += k
+			minP = math.Min(minP, mp)
+		}
+		return neg, minP, nil
+	}
+	r, err := FitFromSums(w, m, sums, diag, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return r
+}
+
+// A fit whose log-likelihood is summed over four partitions equals the
+// local fit to 1e-8 (General Social Survey extract, Long 1997).
+func TestPartitionedFitEqualsLocal(t *testing.T) {
+	d := gssData(t)
 	for _, m := range metaModels[:2] {
 		local := fitOK(t, d, m)
-		sums := func(theta []float64, order int) (*Sums, error) {
-			total := &Sums{}
-			for _, p := range parts {
-				s, err := PartitionSums(p, m, theta, order)
-				if err != nil {
-					return nil, err
-				}
-				total.Add(s)
-			}
-			return total, nil
-		}
-		diag := func(theta []float64) (int, float64, error) {
-			neg, minP := 0, math.Inf(1)
-			for _, p := range parts {
-				k, mp, err := PartitionDiagnostics(p, m, theta)
-				if err != nil {
-					return 0, 0, err
-				}
-				neg += k
-				minP = math.Min(minP, mp)
-			}
-			return neg, minP, nil
-		}
-		r, err := FitFromSums(w, m, sums, diag, Options{})
-		if err != nil {
-			t.Fatal(err)
-		}
+		r := partitioned(t, d, m, 4, Options{})
 		if !r.OK() || math.Abs(r.LogLik-local.LogLik) > 1e-8 {
 			t.Fatalf("%s: %s ll %v vs %v", m.Name(), r.Status, r.LogLik, local.LogLik)
 		}
@@ -57,6 +68,57 @@ func TestPartitionedFitEqualsLocal(t *testing.T) {
 			if math.Abs(r.Estimates[i]-local.Estimates[i]) > 1e-8 || math.Abs(r.StdErrors[i]-local.StdErrors[i]) > 1e-8 {
 				t.Errorf("%s: %v (%v) vs %v (%v)", r.ParamNames[i], r.Estimates[i], r.StdErrors[i], local.Estimates[i], local.StdErrors[i])
 			}
+		}
+	}
+}
+
+// A local and a partitioned fit that fail the same way end with the same
+// status and the same words: both are finished by the same code. Cases: the
+// iteration limit (General Social Survey extract, Long 1997), and a
+// continuous predictor that separates the categories completely (invented
+// rows; a predictor with more than ten values gives no category-at-one-value
+// evidence, which only a local fit could list).
+func TestLocalAndPartitionedFailuresSayTheSame(t *testing.T) {
+	sep := &Data{J: 3, Predictors: []string{"dose"}}
+	for i := 0; i < 60; i++ {
+		sep.Y = append(sep.Y, i/20)
+		sep.X = append(sep.X, float64(i)+0.5*float64(i%3))
+	}
+	cases := []struct {
+		name string
+		d    *Data
+		m    Model
+		opt  Options
+		want Status
+	}{
+		{"iteration limit", gssData(t), metaModels[0], Options{MaxIter: 2}, StatusNotConverged},
+		{"separation", sep, Model{Comparison: Cumulative, Link: Logit, Effects: []Effect{Parallel}}, Options{}, StatusNoFiniteMaximum},
+	}
+	// The partitions' spreads merge into the spread of the whole data.
+	for _, c := range cases {
+		whole, merged := SpreadOf(c.d), &Spread{}
+		for p := 0; p < 3; p++ {
+			lo, hi := p*c.d.N()/3, (p+1)*c.d.N()/3
+			K := len(c.d.Predictors)
+			merged.Merge(SpreadOf(&Data{J: c.d.J, Predictors: c.d.Predictors, Y: c.d.Y[lo:hi], X: c.d.X[lo*K : hi*K]}))
+		}
+		for k, sd := range whole.SD() {
+			if got := merged.SD()[k]; math.Abs(got-sd) > 1e-12*sd {
+				t.Errorf("%s: merged sd of %s %v, whole %v", c.name, c.d.Predictors[k], got, sd)
+			}
+		}
+	}
+	for _, c := range cases {
+		local, err := Fit(c.d, c.m, c.opt)
+		if err != nil {
+			t.Fatal(err)
+		}
+		part := partitioned(t, c.d, c.m, 3, c.opt)
+		if local.Status != c.want || part.Status != c.want {
+			t.Errorf("%s: status local %s, partitioned %s, want %s", c.name, local.Status, part.Status, c.want)
+		}
+		if local.Message != part.Message {
+			t.Errorf("%s: the messages differ:\nlocal:       %s\npartitioned: %s", c.name, local.Message, part.Message)
 		}
 	}
 }

@@ -70,39 +70,7 @@ func newAuxiliary(d *Data, m Model, ly *layout, opt Options) (*auxiliary, error)
 
 // predictorSD returns the (weighted) standard deviation of each predictor.
 func predictorSD(d *Data) []float64 {
-	K := len(d.Predictors)
-	mean, sd := make([]float64, K), make([]float64, K)
-	tot := 0.0
-	for i := range d.Y {
-		w := 1.0
-		if d.Weights != nil {
-			w = d.Weights[i]
-		}
-		tot += w
-		for k := 0; k < K; k++ {
-			mean[k] += w * d.X[i*K+k]
-		}
-	}
-	for k := range mean {
-		mean[k] /= tot
-	}
-	for i := range d.Y {
-		w := 1.0
-		if d.Weights != nil {
-			w = d.Weights[i]
-		}
-		for k := 0; k < K; k++ {
-			v := d.X[i*K+k] - mean[k]
-			sd[k] += w * v * v
-		}
-	}
-	for k := range sd {
-		sd[k] = math.Sqrt(sd[k] / tot)
-		if sd[k] == 0 {
-			sd[k] = 1
-		}
-	}
-	return sd
+	return SpreadOf(d).SD()
 }
 
 // starts lists the starts in order: user, rank1, parallel, random.

@@ -4,15 +4,16 @@ import (
 	"fmt"
 	"path/filepath"
 
+	"ordplan/runner"
 	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 
 // PartitionFiles reads partition files one at a time (so no more than one
 // partition is in memory) to describe the whole data set: category counts,
-// rows, and a reference to each file by its hash. Every file must have the
-// same columns; dopt.Levels must give the categories in order, since a
-// partition may lack some. It also returns the number of data rows read.
+// rows, the spread of the predictors, and a reference to each file by its
+// hash. Every file must have the same columns; dopt.Levels must give the
+// categories in order, since a partition may lack some. It also returns the number of data rows read.
 func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRef, int, error) {
 	var whole fit.Whole
 	read := 0
@@ -23,6 +24,7 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 	whole.Levels = dopt.Levels
 	whole.Predictors = dopt.Predictors
 	whole.Counts = make([]float64, whole.J)
+	whole.Spread = &fit.Spread{}
 	var refs []PartitionRef
 	for _, p := range paths {
 		ds, err := data.Load(p, dopt)
@@ -34,6 +36,7 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 			whole.Counts[j] += c
 		}
 		whole.Rows += ds.N
+		whole.Spread.Merge(fit.SpreadOf(runner.FitData(ds)))
 		h, err := HashFile(p)
 		if err != nil {
 			return whole, nil, 0, err
