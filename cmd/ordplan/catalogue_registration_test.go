@@ -58,5 +58,12 @@ func registrationItems() []badInput {
 		{id: "R4", name: "deviation without a reason", args: []string{"check"}, code: 1,
 			plan: goodPlan + "deviations:\n  - key: rules[1].choose.by\n    reason: \"  \"\n",
 			want: []string{"deviations[0].reason: the reason is empty; say why the registered plan was changed"}},
+		{id: "R5", name: "ordplan init over an existing file", args: []string{"init", "--header", "y,a"}, plan: goodPlan, code: 1,
+			want: []string{"init: R5.yaml already exists; ordplan init never overwrites a file"},
+			check: func(t *testing.T, dir, out, errs string) {
+				if b, _ := os.ReadFile(filepath.Join(dir, "R5.yaml")); string(b) != goodPlan {
+					t.Error("the plan was overwritten")
+				}
+			}},
 	}
 }

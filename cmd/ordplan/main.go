@@ -27,6 +27,7 @@ usage:
   ordplan run PLAN.yaml [--out DIR] [--previous DIR] [--workers N] [--queue nats://HOST:PORT] [--allow-unregistered-changes]
   ordplan worker --queue nats://HOST:PORT [--cache DIR] [--jobs N]
   ordplan check PLAN.yaml [--no-data] [--allow-unregistered-changes]
+  ordplan init PLAN.yaml [--data FILE | --header "a,b,c"] [--outcome COLUMN]
   ordplan freeze PLAN.yaml [--registration ID] [--replace]
   ordplan fit --data FILE --outcome COL --predictors a,b,c [options]
   ordplan version
@@ -52,6 +53,8 @@ func run(args []string, stdout, stderr io.Writer) int {
 		return cmdCheck(args[1:], stdout, stderr)
 	case "freeze":
 		return cmdFreeze(args[1:], stdout, stderr)
+	case "init":
+		return cmdInit(args[1:], stdout, stderr)
 	case "worker":
 		return cmdWorker(args[1:], stdout, stderr)
 	case "version":

@@ -13,6 +13,7 @@ import (
 	"strings"
 	"time"
 
+	"ordplan/internal/newfile"
 	"ordplan/plan"
 )
 
@@ -120,40 +121,14 @@ func Write(f *File, planPath string, replace bool) (path, kept string, err error
 	} else if !errors.Is(err, fs.ErrNotExist) {
 		return path, "", err
 	}
-	if err := createNew(path, f.Encode()); err != nil {
+	if err := newfile.Create(path, f.Encode()); err != nil {
+		var ee *newfile.ExistsError
+		if errors.As(err, &ee) {
+			return path, kept, &ExistsError{Path: path}
+		}
 		return path, kept, err
 	}
 	return path, kept, nil
-}
-
-// createNew writes data to a temporary file in path's folder and links it
-// to path, which fails if path appeared in the meantime: the file is
-// either absent or complete, and nothing is overwritten.
-func createNew(path string, data []byte) error {
-	tmp, err := os.CreateTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
-	if err != nil {
-		return err
-	}
-	name := tmp.Name()
-	defer os.Remove(name)
-	if _, err := tmp.Write(data); err != nil {
-		tmp.Close()
-		return err
-	}
-	if err := tmp.Sync(); err != nil {
-		tmp.Close()
-		return err
-	}
-	if err := tmp.Close(); err != nil {
-		return err
-	}
-	if err := os.Link(name, path); err != nil {
-		if errors.Is(err, fs.ErrExist) {
-			return &ExistsError{Path: path}
-		}
-		return err
-	}
-	return nil
 }
 
 // Read reads and verifies a lock file: its layout, its own checksum, and

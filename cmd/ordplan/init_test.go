@@ -1,0 +1,70 @@
+package main
+
+import (
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"ordplan/plan"
+)
+
+// ordplan init writes a valid plan that lists the columns with their
+// kinds, from a data file or a header line, and never overwrites a file.
+func TestInitSkeleton(t *testing.T) {
+	dir := t.TempDir()
+	csv := "id,grade,dose,smoker,site,note\n" +
+		"p1,2,1.5,0,north,\np2,1,0.5,1,south,x\np3,3,2.0,0,north,NA\np4,2,,1,east,y\np5,1,1.0,0,south,z\n"
+	dataPath := filepath.Join(dir, "data", "trial.csv")
+	os.MkdirAll(filepath.Dir(dataPath), 0o755)
+	os.WriteFile(dataPath, []byte(csv), 0o644)
+	planPath := filepath.Join(dir, "trial.yaml")
+	out, errs, code := runCLI("init", planPath, "--data", dataPath)
+	if code != 0 {
+		t.Fatalf("init: %d %s %s", code, out, errs)
+	}
+	text, _ := os.ReadFile(planPath)
+	for _, want := range []string{
+		"file: data/trial.csv",
+		"#   grade   integer codes 1, 2, 3 (3 values): ordered categories, or a count?  <- outcome (guessed: EDIT)",
+		"#   dose    numeric from 0.5 to 2; 1 of 5 missing",
+		"#   smoker  numeric 0/1",
+		"#   site    text, 3 values: north, south, east (categorical; ordered?)",
+		"categories: [1, 2, 3]",
+		"predictors: [dose, smoker]",
+	} {
+		if !strings.Contains(string(text), want) {
+			t.Errorf("want %q in\n%s", want, text)
+		}
+	}
+	p, err := plan.Load(planPath)
+	if err != nil {
+		t.Fatalf("the skeleton is not a valid plan: %v\n%s", err, text)
+	}
+	if p.Outcomes[0].Column != "grade" {
+		t.Errorf("outcome %q", p.Outcomes[0].Column)
+	}
+	// Never overwritten.
+	os.WriteFile(planPath, []byte("mine\n"), 0o644)
+	if _, errs, code := runCLI("init", planPath, "--data", dataPath); code != 1 || !strings.Contains(errs, "already exists") {
+		t.Fatalf("overwrite: %d %s", code, errs)
+	}
+	if b, _ := os.ReadFile(planPath); string(b) != "mine\n" {
+		t.Fatal("the file was overwritten")
+	}
+	// From a header line, with the outcome named.
+	hp := filepath.Join(dir, "h.yaml")
+	if _, errs, code := runCLI("init", hp, "--header", "y,a,b", "--outcome", "y"); code != 0 {
+		t.Fatalf("header: %s", errs)
+	}
+	src, _ := os.ReadFile(hp)
+	if _, err := plan.Parse(src, hp); err != nil {
+		t.Fatalf("header skeleton: %v\n%s", err, src)
+	}
+	if !strings.Contains(string(src), "#   a  no data yet: numeric, categorical or ordered?") {
+		t.Errorf("header columns not listed:\n%s", src)
+	}
+	if _, errs, code := runCLI("init", filepath.Join(dir, "x.yaml"), "--header", "y,a", "--outcome", "z"); code != 1 || !strings.Contains(errs, `--outcome: column "z" is not in the file`) {
+		t.Errorf("unknown outcome: %d %s", code, errs)
+	}
+}

@@ -1,0 +1,239 @@
+package skeleton
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+
+	"ordplan/runner/data"
+)
+
+// Input is what the skeleton is written from.
+type Input struct {
+	DataFile string         // as the plan will name it (relative to the plan)
+	Columns  []data.Profile // with Rows == 0 when only a header is known
+	HaveData bool           // false: only the header is known
+	Outcome  string         // chosen outcome column ("" = guess)
+}
+
+// Kind says what a column seems to be.
+type Kind struct {
+	Word      string // numeric, binary, categorical, ordered?, text, unknown
+	Describe  string // for the comment beside the column
+	Candidate bool   // could be the ordinal outcome
+}
+
+// KindOf classifies a profiled column.
+func KindOf(p data.Profile, haveData bool) Kind {
+	if !haveData {
+		return Kind{Word: "unknown", Describe: "no data yet: numeric, categorical or ordered?"}
+	}
+	miss := ""
+	if p.Missing > 0 {
+		miss = fmt.Sprintf("; %d of %d missing", p.Missing, p.Rows)
+	}
+	switch {
+	case p.Rows == p.Missing:
+		return Kind{Word: "empty", Describe: "every cell is missing" + miss}
+	case p.Numeric && p.Distinct == 2 && p.Min == 0 && p.Max == 1:
+		return Kind{Word: "binary", Describe: "numeric 0/1" + miss}
+	case p.Numeric && p.Integer && !p.Many && p.Distinct >= 3 && p.Distinct <= 10:
+		return Kind{Word: "ordered?", Candidate: true,
+			Describe: fmt.Sprintf("integer codes %s (%d values): ordered categories, or a count?%s", strings.Join(p.Values, ", "), p.Distinct, miss)}
+	case p.Numeric:
+		what := "numeric"
+		if p.Integer {
+			what = "numeric, whole numbers"
+		}
+		return Kind{Word: "numeric", Describe: fmt.Sprintf("%s from %s to %s%s", what, num(p.Min), num(p.Max), miss)}
+	case !p.Many && p.Distinct <= 12:
+		return Kind{Word: "categorical", Candidate: p.Distinct >= 3 && 2*p.Distinct <= p.Rows-p.Missing,
+			Describe: fmt.Sprintf("text, %d values: %s (categorical; ordered?)%s", p.Distinct, strings.Join(p.Values, ", "), miss)}
+	case !p.Many:
+		return Kind{Word: "categorical", Describe: fmt.Sprintf("text, %d values: %s, ... (categorical, or an id?)%s", p.Distinct, strings.Join(p.Values[:8], ", "), miss)}
+	}
+	return Kind{Word: "text", Describe: fmt.Sprintf("text, more than %d values: an identifier or free text?%s", data.MaxValues, miss)}
+}
+
+func num(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+
+// Write gives the plan text.
+func Write(in Input) ([]byte, error) {
+	kinds := make([]Kind, len(in.Columns))
+	for i, c := range in.Columns {
+		kinds[i] = KindOf(c, in.HaveData)
+	}
+	outcome := -1
+	guessed := false
+	for i, c := range in.Columns {
+		if c.Name == in.Outcome {
+			outcome = i
+		}
+	}
+	if in.Outcome != "" && outcome < 0 {
+		var names []string
+		for _, c := range in.Columns {
+			names = append(names, strconv.Quote(c.Name))
+		}
+		return nil, fmt.Errorf("--outcome: column %q is not in the file (its columns are %s)", in.Outcome, strings.Join(names, ", "))
+	}
+	if outcome < 0 {
+		guessed = true
+		// Integer codes first, then text with few values.
+		for pass := 0; pass < 2 && outcome < 0; pass++ {
+			for i, k := range kinds {
+				if k.Candidate && (pass == 1 || in.Columns[i].Numeric) {
+					outcome = i
+					break
+				}
+			}
+		}
+		if outcome < 0 && len(in.Columns) > 0 {
+			outcome = 0
+		}
+	}
+	var preds, skipped []string
+	for i, c := range in.Columns {
+		if i == outcome {
+			continue
+		}
+		switch kinds[i].Word {
+		case "numeric", "binary", "ordered?", "unknown":
+			preds = append(preds, c.Name)
+		default:
+			skipped = append(skipped, c.Name)
+		}
+	}
+
+	var b strings.Builder
+	w := func(format string, a ...any) { fmt.Fprintf(&b, format+"\n", a...) }
+	source := "its header line"
+	if in.HaveData {
+		rows := 0
+		if len(in.Columns) > 0 {
+			rows = in.Columns[0].Rows
+		}
+		source = fmt.Sprintf("%d data rows", rows)
+	}
+	w("# Analysis plan started by `ordplan init` from %s (%s).", in.DataFile, source)
+	w("# Edit every line marked EDIT, read the others, then check and freeze the plan")
+	w("# before the data are analysed:")
+	w("#   ordplan check PLAN.yaml --no-data      (or without --no-data once the data exist)")
+	w("#   ordplan freeze PLAN.yaml --registration ID")
+	w("# Paths are relative to this file. `null` means \"not set\".")
+	w("version: 1")
+	w("title: EDIT the title of the report")
+	w("seed: 1                  # fixes every random draw (constrained-model starts, simulations)")
+	w("")
+	w("# The columns of %s and what they seem to be:", in.DataFile)
+	width := 0
+	for _, c := range in.Columns {
+		width = max(width, len(c.Name))
+	}
+	for i, c := range in.Columns {
+		role := ""
+		switch {
+		case i == outcome && guessed:
+			role = "  <- outcome (guessed: EDIT)"
+		case i == outcome:
+			role = "  <- outcome"
+		case contains(skipped, c.Name):
+			role = "  (not a predictor below: declare it or leave it out)"
+		}
+		w("#   %-*s  %s%s", width, c.Name, kinds[i].Describe, role)
+	}
+	w("")
+	w("data:")
+	w("  file: %s", yamlString(in.DataFile))
+	w("  missing: drop           # drop rows with a missing value (counted in the report), or refuse")
+	w("  missing_values: [\"\", \"NA\", \"NaN\", \".\"]   # cells that mean \"missing\"")
+	w("  weights: null           # a column of case weights")
+	w("  offset: null            # a column added to every linear predictor")
+	w("  cluster: null           # a column of cluster ids (needs covariance: cluster)")
+	w("")
+	w("outcomes:")
+	if outcome >= 0 {
+		c := in.Columns[outcome]
+		w("  - column: %s", yamlString(c.Name))
+		switch {
+		case in.HaveData && kinds[outcome].Candidate && !c.Numeric:
+			w("    categories: [%s]   # EDIT: put them in order, lowest first", yamlList(c.Values))
+		case in.HaveData && c.Numeric && !c.Many:
+			w("    categories: [%s]   # lowest first; integer codes as found", yamlList(c.Values))
+		default:
+			w("    categories: null     # EDIT: the categories in order, lowest first")
+		}
+		w("    label: %s", yamlString(c.Name))
+	}
+	w("")
+	if len(preds) == 0 {
+		w("predictors: [EDIT]       # no numeric column was found")
+	} else {
+		w("predictors: [%s]", yamlList(preds))
+	}
+	if len(skipped) > 0 {
+		w("# Not listed: %s (text or empty columns; numeric predictors only).", strings.Join(skipped, ", "))
+	}
+	w("")
+	w("models:")
+	w("  approaches: [cumulative, stage, adjacent]")
+	w("  direction: forward      # stage models only: forward | backward")
+	w("  levels: [parallel, nonparallel]   # also: partial, constrained (with partial: free: [...]), stereotype")
+	w("  links: [logit]          # logit | probit | cloglog | loglog | cauchit")
+	w("")
+	w("tests:")
+	w("  parallel_lines: [brant, lr, score, wald]")
+	w("  alpha: 0.05")
+	w("")
+	w("# Rules run in order: the reject_ rules drop fits, the last rule picks one.")
+	w("rules:")
+	w("  - reject_unconverged: true")
+	w("  - reject_negative_probabilities: true")
+	w("  - reject_if_test_rejects: {test: lr, alpha: 0.05}")
+	w("  - prefer_simpler: {by: bic, margin: 2}")
+	w("")
+	w("covariance: oim           # oim | eim | robust | robust_hc0 | cluster")
+	w("")
+	w("report:")
+	w("  confidence_level: 0.95")
+	w("  timestamp: false        # keep reports byte-identical between runs")
+	return []byte(b.String()), nil
+}
+
+func contains(xs []string, s string) bool {
+	for _, x := range xs {
+		if x == s {
+			return true
+		}
+	}
+	return false
+}
+
+// yamlString quotes s when YAML would read it as something else.
+func yamlString(s string) string {
+	plain := s != ""
+	for _, r := range s {
+		if !(r == '_' || r == '-' || r == '.' || r == '/' || r >= '0' && r <= '9' || r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z') {
+			plain = false
+		}
+	}
+	switch strings.ToLower(s) {
+	case "null", "true", "false", "yes", "no", "on", "off", "~", "y", "n":
+		plain = false
+	}
+	if plain && (s[0] == '-' || s[0] == '.') {
+		plain = false
+	}
+	if plain {
+		return s
+	}
+	return strconv.Quote(s)
+}
+
+func yamlList(xs []string) string {
+	q := make([]string, len(xs))
+	for i, x := range xs {
+		q[i] = yamlString(x)
+	}
+	return strings.Join(q, ", ")
+}

@@ -1,0 +1,111 @@
+package data
+
+import (
+	"io"
+	"math"
+	"os"
+	"slices"
+	"strconv"
+	"strings"
+)
+
+// Profile describes one column of a file as found: how many cells are
+// missing, whether the others are all numbers (integers), their range and
+// their distinct values (up to MaxValues).
+type Profile struct {
+	Name     string
+	Rows     int // data rows
+	Missing  int // cells that are missing-value tokens
+	Numeric  bool
+	Integer  bool
+	Min, Max float64 // numeric columns
+	Values   []string
+	Distinct int  // distinct non-missing values (counted up to MaxValues+1)
+	Many     bool // more than MaxValues distinct values
+}
+
+// MaxValues is the number of distinct values a profile lists.
+const MaxValues = 30
+
+// ProfileFile reads a CSV file and profiles every column. Values are
+// listed in order of first appearance, or numerically for numbers.
+func ProfileFile(path string, missingTokens []string) ([]Profile, error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, &Error{File: path, Msg: "cannot open file: " + osReason(err), Err: err}
+	}
+	defer f.Close()
+	r := &reader{file: path, opt: Options{MissingTokens: missingTokens}}
+	r.missing = r.opt.missingSet()
+	r.start(f)
+	names, _, err := r.names()
+	if err != nil {
+		return nil, err
+	}
+	out := make([]Profile, len(names))
+	seen := make([]map[string]bool, len(names))
+	for i, n := range names {
+		out[i] = Profile{Name: n, Numeric: true, Integer: true, Min: math.Inf(1), Max: math.Inf(-1)}
+		seen[i] = map[string]bool{}
+	}
+	for {
+		rec, err := r.cr.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, r.csvErr(err, rec)
+		}
+		for i, cell := range rec {
+			p := &out[i]
+			p.Rows++
+			cell = strings.TrimSpace(cell)
+			if r.missing[cell] {
+				p.Missing++
+				continue
+			}
+			if !seen[i][cell] && !p.Many {
+				seen[i][cell] = true
+				if len(p.Values) < MaxValues {
+					p.Values = append(p.Values, cell)
+				} else {
+					p.Many = true
+				}
+			}
+			if p.Numeric {
+				v, msg := parseNumber(cell)
+				if msg != "" {
+					p.Numeric, p.Integer = false, false
+					continue
+				}
+				p.Min, p.Max = math.Min(p.Min, v), math.Max(p.Max, v)
+				if v != math.Trunc(v) {
+					p.Integer = false
+				}
+			}
+		}
+	}
+	for i := range out {
+		p := &out[i]
+		p.Distinct = len(p.Values)
+		if p.Rows == p.Missing {
+			p.Numeric, p.Integer = false, false
+		}
+		if p.Numeric {
+			slices.SortFunc(p.Values, func(a, b string) int {
+				x, _ := strconv.ParseFloat(a, 64)
+				y, _ := strconv.ParseFloat(b, 64)
+				switch {
+				case x < y:
+					return -1
+				case x > y:
+					return 1
+				}
+				return strings.Compare(a, b)
+			})
+		} else {
+			p.Min, p.Max = 0, 0
+		}
+	}
+	return out, nil
+}
