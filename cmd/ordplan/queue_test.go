@@ -11,7 +11,6 @@ import (
 	"regexp"
 	"strconv"
 	"strings"
-	"sync"
 	"syscall"
 	"testing"
 	"time"
@@ -23,47 +22,35 @@ import (
 	"ordplan/runner/queue/localserver"
 )
 
-// The queue tests run real worker processes of the ordplan binary, built
-// once on first use into binDir.
-var (
-	binOnce sync.Once
-	binDir  string
-	binPath string
-	binErr  error
+// The queue tests run real worker and coordinator processes: the test
+// binary itself, started again as the ordplan command when asCommandEnv is
+// set. No separate binary is built, and the settings below exist only in
+// the test binary.
+const (
+	asCommandEnv = "ORDPLAN_TEST_AS_COMMAND"
+	// holdEnv makes a worker child hold each job it takes this long before
+	// computing it, so that a test can kill it while it holds one.
+	holdEnv = "ORDPLAN_TEST_WORKER_HOLD"
 )
 
 func TestMain(m *testing.M) {
-	code := m.Run()
-	if binDir != "" {
-		os.RemoveAll(binDir)
+	if os.Getenv(asCommandEnv) != "" {
+		os.Exit(commandForTest(os.Args[1:]))
 	}
-	os.Exit(code)
+	os.Exit(m.Run())
 }
 
-func ordplanBinary(t *testing.T) string {
-	t.Helper()
-	binOnce.Do(func() {
-		if binDir, binErr = os.MkdirTemp("", "ordplan-queue-test"); binErr != nil {
-			return
-		}
-		binPath = filepath.Join(binDir, "ordplan")
-		out, err := exec.Command("go", "build", "-o", binPath, ".").CombinedOutput()
+// commandForTest runs the ordplan command in a child process of a test.
+func commandForTest(args []string) int {
+	if v := os.Getenv(holdEnv); v != "" && len(args) > 0 && args[0] == "worker" {
+		hold, err := time.ParseDuration(v)
 		if err != nil {
-			binErr = &buildError{err, string(out)}
+			return fail(os.Stderr, err)
 		}
-	})
-	if binErr != nil {
-		t.Fatal(binErr)
+		return runWorker(args[1:], os.Stdout, os.Stderr, hold)
 	}
-	return binPath
+	return run(args, os.Stdout, os.Stderr)
 }
-
-type buildError struct {
-	err error
-	out string
-}
-
-func (e *buildError) Error() string { return "go build: " + e.err.Error() + ": " + e.out }
 
 // proc is a child process of the test with its stderr collected.
 type proc struct {
@@ -74,8 +61,12 @@ type proc struct {
 
 func startProc(t *testing.T, env []string, args ...string) *proc {
 	t.Helper()
-	p := &proc{cmd: exec.Command(ordplanBinary(t), args...), stderr: &queue.LogBuffer{}, done: make(chan struct{})}
-	p.cmd.Env = append(os.Environ(), env...)
+	self, err := os.Executable()
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := &proc{cmd: exec.Command(self, args...), stderr: &queue.LogBuffer{}, done: make(chan struct{})}
+	p.cmd.Env = append(append(os.Environ(), asCommandEnv+"=1"), env...)
 	p.cmd.Stderr = p.stderr
 	if err := p.cmd.Start(); err != nil {
 		t.Fatal(err)
@@ -187,7 +178,7 @@ func TestQueueRunSurvivesKilledWorker(t *testing.T) {
 		t.Fatalf("local run: exit %d: %s %s", code, out, errs)
 	}
 	url := localserver.ForTest(t)
-	victim := startWorkerProc(t, url, "victim", testDelayEnv+"=60s")
+	victim := startWorkerProc(t, url, "victim", holdEnv+"=60s")
 	run := runAsync("run", plan, "--out", remote, "--queue", url)
 	victim.waitLog(t, 30*time.Second, "started")
 	victim.kill(t)
@@ -223,7 +214,7 @@ func TestQueueCoordinatorRestartResumes(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer nc.Close()
-	slow := startWorkerProc(t, url, "slow", testDelayEnv+"=250ms")
+	slow := startWorkerProc(t, url, "slow", holdEnv+"=250ms")
 	first := startProc(t, nil, "run", plan, "--out", filepath.Join(dir, "first"), "--queue", url)
 	first.waitLog(t, 30*time.Second, "published")
 	js, _ := jetstream.New(nc)

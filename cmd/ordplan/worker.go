@@ -15,14 +15,16 @@ import (
 	"ordplan/runner/queue"
 )
 
-// testDelayEnv names a test-only setting: a duration a worker waits after
-// taking each job, so tests can kill it while it holds one.
-const testDelayEnv = "ORDPLAN_WORKER_TEST_DELAY"
-
 const workerUsage = "usage: ordplan worker --queue nats://HOST:PORT [--cache DIR] [--jobs N] [--ack-wait 30s] [--name NAME] [--quiet]"
 
 // cmdWorker pulls fits from the queue until interrupted.
 func cmdWorker(args []string, stdout, stderr io.Writer) int {
+	return runWorker(args, stdout, stderr, 0)
+}
+
+// runWorker is cmdWorker holding each job it takes for hold before
+// computing it (the tests kill a worker while it holds one).
+func runWorker(args []string, stdout, stderr io.Writer, hold time.Duration) int {
 	fs := newFlags("worker", stderr)
 	url := fs.String("queue", "", "NATS URL of a JetStream server, e.g. nats://127.0.0.1:4222 (required)")
 	cache := fs.String("cache", "", "folder for data files fetched by hash (default: the user cache folder, ordplan/data)")
@@ -49,14 +51,6 @@ func cmdWorker(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "ordplan worker: --ack-wait must be at least 100ms, not %s\n", *ackWait)
 		return exitUsage
 	}
-	var delay time.Duration
-	if v := os.Getenv(testDelayEnv); v != "" {
-		d, err := time.ParseDuration(v)
-		if err != nil || d < 0 {
-			return fail(stderr, fmt.Errorf("%s=%q: not a duration", testDelayEnv, v))
-		}
-		delay = d
-	}
 	if *cache == "" {
 		dir, err := queue.DefaultCacheDir()
 		if err != nil {
@@ -75,7 +69,7 @@ func cmdWorker(args []string, stdout, stderr io.Writer) int {
 		return fail(stderr, err)
 	}
 	defer c.Close()
-	w := &queue.Worker{Client: c, Name: *name, CacheDir: *cache, Jobs: *jobs, AckWait: *ackWait, Delay: delay}
+	w := &queue.Worker{Client: c, Name: *name, CacheDir: *cache, Jobs: *jobs, AckWait: *ackWait, Delay: hold}
 	if !*quiet {
 		w.Log = stderr
 	}

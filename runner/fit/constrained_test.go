@@ -123,11 +123,8 @@ func TestPoorStartStillReachesOptimum(t *testing.T) {
 			start[i] = []float64{0, -3, 5}[p.m]
 		}
 	}
-	for _, screenRows := range []int{screenMinRows, 0} {
-		saved := screenMinRows
-		screenMinRows = screenRows
-		res, err := Fit(d, m, Options{Start: start})
-		screenMinRows = saved
+	for _, screenRows := range []int{0, -1} {
+		res, err := Fit(d, m, Options{Start: start, ScreenAbove: screenRows})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -209,12 +206,9 @@ func TestMultiStartDeterministic(t *testing.T) {
 func TestScreenedStartsAgreeWithFullStarts(t *testing.T) {
 	d := benchData(3000)
 	m, _ := benchModels()
-	saved := screenMinRows
-	defer func() { screenMinRows = saved }()
 	var res [2]*Result
-	for i, rows := range []int{0, 1 << 30} {
-		screenMinRows = rows
-		r, err := Fit(d, m, Options{})
+	for i, rows := range []int{-1, 1 << 30} {
+		r, err := Fit(d, m, Options{ScreenAbove: rows})
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -17,6 +17,14 @@ type Data struct {
 	Offset     []float64 // added to x'b in every equation (nil: none)
 }
 
+// screenAbove is ScreenAbove with its default.
+func (o Options) screenAbove() int {
+	if o.ScreenAbove == 0 {
+		return defaultScreenAbove
+	}
+	return o.ScreenAbove
+}
+
 // N is the number of rows.
 func (d *Data) N() int { return len(d.Y) }
 
@@ -36,6 +44,12 @@ type Options struct {
 	// RandomStarts is the number of random starts of a model with
 	// constrained predictors: 0 means 5, a negative number none.
 	RandomStarts int
+	// ScreenAbove: with more rows than this, a model with constrained
+	// predictors runs on the data only the user's start and the first
+	// deterministic one, and screens the others on the quadratic
+	// approximation around the unconstrained partial fit first. 0 means
+	// 5000; a negative number screens at any size.
+	ScreenAbove int
 	// Sandwich, when set, replaces the covariance of every usable fit that
 	// Stepwise makes before it tests (robust or cluster-robust errors).
 	// Fit itself ignores it.

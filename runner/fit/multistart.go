@@ -47,10 +47,8 @@ type PhiNormalization struct {
 // Options.RandomStarts is 0.
 const defaultRandomStarts = 5
 
-// screenMinRows: with more rows than this, starts other than the user's
-// and the first deterministic one are screened on the quadratic
-// approximation around the unconstrained partial fit before any data fit.
-var screenMinRows = 5000
+// defaultScreenAbove is Options.ScreenAbove when it is 0.
+const defaultScreenAbove = 5000
 
 // sameLL is the log-likelihood tolerance of "reached the best".
 const sameLL = 1e-6

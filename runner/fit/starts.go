@@ -52,7 +52,7 @@ func newAuxiliary(d *Data, m Model, ly *layout, opt Options) (*auxiliary, error)
 			a.sur = &surrogate{rankMap: newRankMap(ly, pLy, m.Effects, nil), hat: partial.Estimates, info: info}
 		}
 	}
-	a.screen = a.sur != nil && d.N() > screenMinRows
+	a.screen = a.sur != nil && d.N() > opt.screenAbove()
 	if a.screen {
 		// The parallel fit is replaced by its counterpart on the
 		// approximation (phi = 1, the rest by generalized least squares).
