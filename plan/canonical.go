@@ -3,6 +3,8 @@ package plan
 import (
 	"bytes"
 	"encoding/json"
+
+	"ordplan/runner/design"
 )
 
 // Canonical gives the resolved plan, defaults included, as indented JSON
@@ -25,18 +27,20 @@ func (p *Plan) Canonical() []byte {
 }
 
 type canonPlan struct {
-	Version    int              `json:"version"`
-	Title      string           `json:"title"`
-	Seed       uint64           `json:"seed"`
-	Data       canonData        `json:"data"`
-	Outcomes   []canonOutcome   `json:"outcomes"`
-	Predictors []string         `json:"predictors"`
-	Models     canonModels      `json:"models"`
-	Tests      canonTests       `json:"tests"`
-	Rules      []map[string]any `json:"rules"`
-	Covariance string           `json:"covariance"`
-	Report     canonReport      `json:"report"`
-	Inference  canonInference   `json:"inference"`
+	Version     int              `json:"version"`
+	Title       string           `json:"title"`
+	Seed        uint64           `json:"seed"`
+	Data        canonData        `json:"data"`
+	Outcomes    []canonOutcome   `json:"outcomes"`
+	Subset      []map[string]any `json:"subset,omitempty"`
+	Categorical map[string]any   `json:"categorical,omitempty"`
+	Predictors  []any            `json:"predictors"`
+	Models      canonModels      `json:"models"`
+	Tests       canonTests       `json:"tests"`
+	Rules       []map[string]any `json:"rules"`
+	Covariance  string           `json:"covariance"`
+	Report      canonReport      `json:"report"`
+	Inference   canonInference   `json:"inference"`
 }
 
 type canonData struct {
@@ -53,6 +57,7 @@ type canonOutcome struct {
 	Column     string   `json:"column"`
 	Categories []string `json:"categories"`
 	Label      string   `json:"label"`
+	Predictors []any    `json:"predictors,omitempty"`
 }
 
 type canonModels struct {
@@ -111,7 +116,7 @@ func (p *Plan) canonical() canonPlan {
 		Version:    1,
 		Title:      p.Title,
 		Seed:       p.Seed,
-		Predictors: nonNil(p.Predictors),
+		Predictors: canonTerms(p.Terms),
 		Covariance: p.Covariance,
 		Data: canonData{
 			File:          p.Data.File,
@@ -156,7 +161,29 @@ func (p *Plan) canonical() canonPlan {
 		c.Models.Partial = pa
 	}
 	for _, o := range p.Outcomes {
-		c.Outcomes = append(c.Outcomes, canonOutcome{Column: o.Column, Categories: o.Categories, Label: o.Label})
+		co := canonOutcome{Column: o.Column, Categories: o.Categories, Label: o.Label}
+		if o.Predictors != nil {
+			co.Predictors = canonTerms(o.Terms)
+		}
+		c.Outcomes = append(c.Outcomes, co)
+	}
+	for _, k := range p.Subset {
+		for _, o := range subsetOps {
+			if o.op == k.Op {
+				var v any = k.Number
+				if k.Op == "in" || k.Op == "not_in" {
+					v = k.Values
+				}
+				c.Subset = append(c.Subset, map[string]any{"column": k.Column, o.key: v})
+			}
+		}
+	}
+	if len(p.Categorical) > 0 {
+		c.Categorical = map[string]any{}
+	}
+	for _, k := range p.Categorical {
+		c.Categorical[k.Column] = map[string]any{"levels": k.Levels, "reference": k.Reference,
+			"coding": k.Coding, "ordered": k.Ordered, "unobserved": k.Unobserved}
 	}
 	for _, r := range p.Rules {
 		c.Rules = append(c.Rules, canonRule(r))
@@ -174,4 +201,54 @@ func canonRule(r Rule) map[string]any {
 		opts = map[string]any{"by": r.By, "margin": r.Margin}
 	}
 	return map[string]any{r.Kind: opts}
+}
+
+// canonTerms writes the terms as a plan's predictor list: a plain column
+// as its name, any other term as a mapping.
+func canonTerms(terms []design.TermSpec) []any {
+	out := []any{}
+	for _, t := range terms {
+		tr := t.Transform
+		if len(t.Interact) == 0 && tr.Empty() && t.Name == t.Source {
+			out = append(out, t.Name)
+			continue
+		}
+		m := map[string]any{"name": t.Name}
+		if len(t.Interact) > 0 {
+			m["interact"] = t.Interact
+			out = append(out, m)
+			continue
+		}
+		m["column"] = t.Source
+		if tr.Log {
+			m["log"] = map[string]any{"shift": tr.Shift}
+		}
+		if tr.Sqrt {
+			m["sqrt"] = true
+		}
+		switch tr.Centre {
+		case "mean":
+			m["centre"] = "mean"
+		case "value":
+			m["centre"] = tr.CentreAt
+		}
+		if tr.Scale {
+			m["scale"] = "sd"
+		}
+		if tr.Poly > 0 {
+			basis := "orthogonal"
+			if tr.PolyRaw {
+				basis = "raw"
+			}
+			m["poly"] = map[string]any{"degree": tr.Poly, "basis": basis}
+		}
+		if tr.Knots != nil {
+			m["spline"] = map[string]any{"knots": tr.Knots}
+		}
+		if tr.Quantiles != nil {
+			m["spline"] = map[string]any{"quantiles": tr.Quantiles}
+		}
+		out = append(out, m)
+	}
+	return out
 }

@@ -10,6 +10,12 @@ import (
 // check runs the checks that involve more than one key.
 func (d *decoder) check(p *Plan) {
 	d.checkColumns(p)
+	d.checkTerms(p, p.Terms, "predictors")
+	for i, o := range p.Outcomes {
+		if o.Terms != nil {
+			d.checkTerms(p, o.Terms, itemPath("outcomes", i)+".predictors")
+		}
+	}
 	d.checkDataOptions(p)
 	d.checkApproaches(p)
 	d.checkPartial(p)
@@ -18,7 +24,7 @@ func (d *decoder) check(p *Plan) {
 	if d.predictorsKnown(p) {
 		d.checkInference(p)
 	}
-	if f := p.Report.FocusPredictor; d.given("report.focus_predictor") && d.predictorsKnown(p) && !slices.Contains(p.Predictors, f) {
+	if f := p.Report.FocusPredictor; d.given("report.focus_predictor") && d.predictorsKnown(p) && !slices.Contains(p.Predictors, f) && !slices.Contains(p.SourceColumns(), f) {
 		d.errAt("report.focus_predictor", "%s is not a predictor (%s)", quote(f), known(p.Predictors))
 	}
 }
@@ -82,8 +88,8 @@ func (d *decoder) checkColumns(p *Plan) {
 				d.errAt(ck, "category %s is also a missing-value marker in data.missing_values", quote(c))
 			}
 		}
-		if predOK && slices.Contains(p.Predictors, o.Column) {
-			pk := d.itemKey("predictors", o.Column)
+		if predOK && slices.Contains(p.SourceColumns(), o.Column) {
+			pk := d.sourceKey(p, o.Column)
 			d.errAt(key, "%s is both an outcome and a predictor (%s, line %d)", quote(o.Column), pk, d.line(pk))
 		}
 	}
@@ -98,7 +104,7 @@ func (d *decoder) checkColumns(p *Plan) {
 		}
 		if _, ok := outcomeAt[r.col]; ok {
 			d.errAt(r.key, "%s is an outcome column", quote(r.col))
-		} else if predOK && slices.Contains(p.Predictors, r.col) {
+		} else if predOK && slices.Contains(p.SourceColumns(), r.col) {
 			d.errAt(r.key, "%s is also listed in predictors", quote(r.col))
 		}
 	}
@@ -115,4 +121,14 @@ func (d *decoder) checkDataOptions(p *Plan) {
 	if p.Data.Cluster != "" && p.Covariance != "cluster" && d.clean("covariance") {
 		d.errAt("data.cluster", "the cluster column is used only with covariance: cluster (covariance is %s); set covariance: cluster or remove data.cluster", quote(p.Covariance))
 	}
+}
+
+// sourceKey gives the key of the first term that reads column col.
+func (d *decoder) sourceKey(p *Plan, col string) string {
+	for _, t := range p.Terms {
+		if t.Source == col {
+			return t.Key
+		}
+	}
+	return "predictors"
 }

@@ -42,10 +42,23 @@ func (d *decoder) checkDataColumns(p *Plan) {
 	for i, o := range p.Outcomes {
 		missing(itemPath("outcomes", i)+".column", o.Column)
 	}
-	if d.clean("predictors") {
-		for _, x := range p.Predictors {
-			missing(d.itemKey("predictors", x), x)
+	for _, t := range p.Terms {
+		if t.Source != "" && d.clean(t.Key) {
+			missing(t.Key, t.Source)
 		}
+	}
+	for _, o := range p.Outcomes {
+		for _, t := range o.Terms {
+			if t.Source != "" && d.clean(t.Key) {
+				missing(t.Key, t.Source)
+			}
+		}
+	}
+	for _, c := range p.Categorical {
+		missing(c.Key, c.Column)
+	}
+	for _, c := range p.Subset {
+		missing(c.Key+".column", c.Column)
 	}
 	missing("data.weights", p.Data.Weights)
 	missing("data.offset", p.Data.Offset)

@@ -52,7 +52,7 @@ func (d *decoder) checkPartial(p *Plan) {
 	}
 	if d.predictorsKnown(p) {
 		for _, f := range pa.Free {
-			if !slices.Contains(p.Predictors, f) {
+			if !p.hasTerm(f) {
 				d.errAt(d.itemKey("models.partial.free", f), "%s is not a predictor (%s)", quote(f), known(p.Predictors))
 			}
 		}
@@ -81,7 +81,7 @@ func (d *decoder) checkGroups(p *Plan) {
 		for _, x := range g.Predictors {
 			key := d.itemKey(gp+".predictors", x)
 			switch other, dup := groupOf[x]; {
-			case !slices.Contains(p.Predictors, x):
+			case !p.hasTerm(x):
 				d.errAt(key, "%s is not a predictor (%s)", quote(x), known(p.Predictors))
 			case !slices.Contains(pa.Free, x):
 				d.errAt(key, "%s is not in models.partial.free, so it cannot be constrained", quote(x))

@@ -73,6 +73,12 @@ func (d *decoder) decodeOutcomes(n *yaml.Node) []Outcome {
 			o.Categories = d.categories(v, m.at("categories"))
 		}
 		m.text("label", &o.Label)
+		if v := m.get("predictors"); v != nil && d.nonEmpty(v, m.at("predictors"), "predictor") {
+			o.Predictors, o.Terms = d.decodeTerms(v, m.at("predictors"))
+			if o.Predictors == nil {
+				o.Predictors = []string{}
+			}
+		}
 	}
 	return out
 }

@@ -14,6 +14,9 @@ func (d *decoder) applyDefaults(p *Plan) {
 	}
 	if p.Report.FocusPredictor == "" && !d.given("report.focus_predictor") && len(p.Predictors) > 0 {
 		p.Report.FocusPredictor = p.Predictors[0]
+		if len(p.Terms) > 0 && p.Terms[0].Source != "" {
+			p.Report.FocusPredictor = p.Terms[0].Source
+		}
 	}
 	for i := range p.Rules {
 		if p.Rules[i].Kind == RuleRejectIfTestRejects && p.Rules[i].Alpha == 0 {

@@ -3,6 +3,7 @@ package plan
 import (
 	"path/filepath"
 	"slices"
+	"strings"
 
 	"gopkg.in/yaml.v3"
 )
@@ -35,8 +36,9 @@ type Hypothesis struct {
 
 // AtValue is one predictor value for marginal effects at given values.
 type AtValue struct {
-	Predictor string
-	Value     float64
+	Predictor string  // a column the terms read
+	Value     float64 // numeric columns
+	Level     string  // categorical columns: the level
 }
 
 var (
@@ -76,7 +78,9 @@ func (d *decoder) decodeInference(n *yaml.Node, inf *Inference, dir string) {
 					continue
 				}
 				seen[k.Value] = true
-				if x, ok := d.number(d.record(path, val), path); ok {
+				if dv := deref(d.record(path, val)); dv != nil && dv.Kind == yaml.ScalarNode && dv.ShortTag() == "!!str" {
+					inf.At = append(inf.At, AtValue{Predictor: k.Value, Level: dv.Value})
+				} else if x, ok := d.number(dv, path); ok {
 					inf.At = append(inf.At, AtValue{Predictor: k.Value, Value: x})
 				}
 			}
@@ -97,8 +101,15 @@ func (d *decoder) decodeInference(n *yaml.Node, inf *Inference, dir string) {
 func (d *decoder) checkInference(p *Plan) {
 	inf := &p.Inference
 	for _, a := range inf.At {
-		if !slices.Contains(p.Predictors, a.Predictor) {
-			d.errAt(childPath("inference.at", a.Predictor), "%s is not a predictor of the plan", quote(a.Predictor))
+		key := childPath("inference.at", a.Predictor)
+		c := p.categorical(a.Predictor)
+		switch {
+		case !slices.Contains(p.SourceColumns(), a.Predictor):
+			d.errAt(key, "%s is not a column the predictors read (%s)", quote(a.Predictor), strings.Join(p.SourceColumns(), ", "))
+		case c != nil && !slices.Contains(c.Levels, a.Level):
+			d.errAt(key, "%s is categorical: give one of its levels (%s)", quote(a.Predictor), strings.Join(c.Levels, ", "))
+		case c == nil && a.Level != "":
+			d.errAt(key, "%s is numeric: give a number, got %s", quote(a.Predictor), quote(a.Level))
 		}
 	}
 	hasValues := slices.Contains(inf.MarginalEffects, "values")
@@ -112,10 +123,10 @@ func (d *decoder) checkInference(p *Plan) {
 
 // canonInference is the canonical form of the section.
 type canonInference struct {
-	Hypotheses      []string           `json:"hypotheses"`
-	MarginalEffects []string           `json:"marginal_effects"`
-	At              map[string]float64 `json:"at,omitempty"`
-	Predict         *string            `json:"predict"`
+	Hypotheses      []string       `json:"hypotheses"`
+	MarginalEffects []string       `json:"marginal_effects"`
+	At              map[string]any `json:"at,omitempty"`
+	Predict         *string        `json:"predict"`
 }
 
 func (inf *Inference) canonical() canonInference {
@@ -124,9 +135,12 @@ func (inf *Inference) canonical() canonInference {
 		c.Hypotheses = append(c.Hypotheses, h.Text)
 	}
 	if len(inf.At) > 0 {
-		c.At = map[string]float64{}
+		c.At = map[string]any{}
 		for _, a := range inf.At {
 			c.At[a.Predictor] = a.Value
+			if a.Level != "" {
+				c.At[a.Predictor] = a.Level
+			}
 		}
 	}
 	if inf.Predict != "" {

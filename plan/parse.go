@@ -128,8 +128,14 @@ func (d *decoder) decodePlan(root *yaml.Node, p *Plan) {
 	if v := m.required("outcomes"); v != nil {
 		p.Outcomes = d.decodeOutcomes(v)
 	}
+	if v := m.get("subset"); v != nil {
+		p.Subset = d.decodeSubset(v)
+	}
+	if v := m.get("categorical"); v != nil {
+		p.Categorical = d.decodeCategorical(v)
+	}
 	if v := m.required("predictors"); v != nil && d.nonEmpty(v, "predictors", "predictor") {
-		p.Predictors, _ = d.names(v, "predictors")
+		p.Predictors, p.Terms = d.decodeTerms(v, "predictors")
 	}
 	d.decodeModels(m.get("models"), &p.Models)
 	d.decodeTests(m.get("tests"), &p.Tests)

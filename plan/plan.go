@@ -1,17 +1,30 @@
 package plan
 
-import "slices"
+import (
+	"slices"
+
+	"ordplan/runner/data"
+	"ordplan/runner/design"
+)
 
 // Plan is a resolved analysis plan.
 type Plan struct {
-	Path       string // file it was read from
-	Dir        string // directory of the plan file (data paths resolve against it)
-	Hash       string // hex SHA-256 of the plan file bytes
-	Title      string
-	Seed       uint64 // default 1
-	Data       Data
-	Outcomes   []Outcome
+	Path     string // file it was read from
+	Dir      string // directory of the plan file (data paths resolve against it)
+	Hash     string // hex SHA-256 of the plan file bytes
+	Title    string
+	Seed     uint64 // default 1
+	Data     Data
+	Outcomes []Outcome
+	// Predictors are the names of the terms, in order; Terms say what
+	// each is (a column as it is, a transformed or categorical column, or
+	// an interaction).
 	Predictors []string
+	Terms      []design.TermSpec
+	// Categorical declares the columns read as levels.
+	Categorical []CategoricalColumn
+	// Subset: the conditions a row must meet to be used.
+	Subset     []data.Condition
 	Models     Models
 	Tests      Tests
 	Rules      []Rule
@@ -38,6 +51,10 @@ type Outcome struct {
 	Column     string   // required
 	Categories []string // optional order, lowest first; nil = take from data
 	Label      string   // human name; defaults to Column
+	// Predictors and Terms: the outcome's own predictor list (nil: the
+	// plan's).
+	Predictors []string
+	Terms      []design.TermSpec
 }
 
 // Models describes the grid of models to fit.

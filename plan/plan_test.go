@@ -478,11 +478,11 @@ func TestInferenceSection(t *testing.T) {
 		t.Fatalf("canonical round trip: %v", err)
 	}
 	for _, c := range []struct{ src, want string }{
-		{"inference:\n  at: {c: 1}\n  marginal_effects: [values]\n", `inference.at.c: "c" is not a predictor`},
+		{"inference:\n  at: {c: 1}\n  marginal_effects: [values]\n", `inference.at.c: "c" is not a column the predictors read`},
 		{"inference:\n  marginal_effects: [values]\n", "need inference.at"},
 		{"inference:\n  at: {a: 1}\n", "used only with marginal_effects"},
 		{"inference:\n  marginal_effects: [median]\n", "median"},
-		{"inference:\n  at: {a: x}\n  marginal_effects: [values]\n", "want a number"},
+		{"inference:\n  at: {a: x}\n  marginal_effects: [values]\n", "give a number"},
 		{"inference:\n  hypothesis: [\"a = 0\"]\n", "unknown key"},
 	} {
 		_, err := Parse([]byte(base+c.src), "p.yaml")

@@ -4,7 +4,6 @@ import (
 	"fmt"
 
 	"ordplan/plan"
-	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 
@@ -12,16 +11,11 @@ import (
 // named column exists, and every declared category is observed.
 func CheckData(p *plan.Plan) error {
 	for _, oc := range p.Outcomes {
-		ds, err := data.Load(p.Data.Path, data.Options{Outcome: oc.Column, Levels: oc.Categories, Predictors: p.Predictors,
-			Weights: p.Data.Weights, Offset: p.Data.Offset, Cluster: p.Data.Cluster,
-			Refuse: p.Data.Missing == "refuse", MissingTokens: p.Data.MissingValues})
+		_, _, d, _, err := loadDesign(p, oc)
 		if err != nil {
-			return fmt.Errorf("%s (plan %s, outcome %q)", err, p.Path, oc.Column)
+			return err
 		}
-		if len(ds.Unobserved) > 0 {
-			return fmt.Errorf("%s: outcomes: %s: category %q is declared but never observed in the %d rows used", p.Path, oc.Column, ds.Unobserved[0], ds.N)
-		}
-		if err := fit.CheckDesign(FitData(ds)); err != nil {
+		if err := fit.CheckDesign(d); err != nil {
 			return fmt.Errorf("%s: outcome %q: %v", p.Data.File, oc.Column, err)
 		}
 	}

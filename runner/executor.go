@@ -4,6 +4,7 @@ import (
 	"fmt"
 
 	"ordplan/runner/data"
+	"ordplan/runner/design"
 	"ordplan/runner/fit"
 )
 
@@ -18,7 +19,10 @@ type Job struct {
 	DataFile    string // name of the data file, for messages
 	DataHash    string // hex SHA-256 of the data file bytes
 	DataOptions data.Options
-	FitOptions  fit.Options
+	// Design, when set, turns the columns read into the design columns
+	// (rebuilt on the same rows, so every frozen constant is the same).
+	Design     *design.Spec `json:",omitempty"`
+	FitOptions fit.Options
 }
 
 // Executor fits jobs somewhere (for example on remote workers) and returns
@@ -39,7 +43,13 @@ func ExecuteJob(path string, job Job) (*fit.Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	return fit.Fit(FitData(ds), m, job.FitOptions)
+	d := FitData(ds)
+	if job.Design != nil {
+		if _, d, err = buildDesign(*job.Design, ds); err != nil {
+			return nil, err
+		}
+	}
+	return fit.Fit(d, m, job.FitOptions)
 }
 
 // remoteJobs dispatches the outcome's fits to the executor and stores the
@@ -52,7 +62,7 @@ func remoteJobs(ex Executor, entries []*FitEntry, p *ruleContext) error {
 			continue
 		}
 		jobs = append(jobs, Job{Outcome: p.outcome, Index: i, ID: e.ID, Spec: e.Spec, DataFile: p.dataFile,
-			DataHash: p.dataHash, DataOptions: p.dataOptions, FitOptions: p.fitOptions})
+			DataHash: p.dataHash, DataOptions: p.dataOptions, Design: p.design, FitOptions: p.fitOptions})
 		idx = append(idx, i)
 	}
 	results, errs := ex.Execute(jobs)
@@ -83,4 +93,5 @@ type ruleContext struct {
 	dataOptions data.Options
 	fitOptions  fit.Options
 	sandwich    func(*fit.Result) error
+	design      *design.Spec
 }

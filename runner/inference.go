@@ -2,7 +2,6 @@ package runner
 
 import (
 	"fmt"
-	"slices"
 	"strings"
 
 	"ordplan/plan"
@@ -21,18 +20,22 @@ type HypothesisResult struct {
 
 // MarginalSet is one kind of marginal effects of the chosen model.
 type MarginalSet struct {
-	Kind    string               `json:"kind"` // average, means or values
-	At      []float64            `json:"at,omitempty"`
-	Effects []fit.MarginalEffect `json:"effects"`
-	Error   string               `json:"error,omitempty"`
+	Kind     string               `json:"kind"`                // average, means or values
+	At       []float64            `json:"at,omitempty"`        // the raw row: one value per column read
+	AtLevels []string             `json:"at_levels,omitempty"` // the level of each categorical column of At
+	Effects  []fit.MarginalEffect `json:"effects"`
+	Error    string               `json:"error,omitempty"`
 }
 
 // NewRows are the chosen model's predictions for the plan's new rows.
 type NewRows struct {
-	File  string          `json:"file"`
-	Rows  *data.Rows      `json:"-"`
-	Pred  *fit.Prediction `json:"-"`
-	Error string          `json:"error,omitempty"`
+	File string          `json:"file"`
+	Rows *data.Rows      `json:"-"`
+	Pred *fit.Prediction `json:"-"`
+	// Design is the new rows' design (N x columns), made from their raw
+	// values with the constants frozen from the fitted data.
+	Design []float64 `json:"-"`
+	Error  string    `json:"error,omitempty"`
 }
 
 // runInference computes what the plan's inference section asks for.
@@ -51,18 +54,16 @@ func runInference(p *plan.Plan, or *OutcomeResult) error {
 		var err error
 		switch kind {
 		case "average":
-			set.Effects, err = res.AverageMarginalEffects(or.FitData, level)
+			set.Effects, err = sourceEffects(or, res, or.Data.X, or.Data.N, or.Data.Offset, or.Data.Weights, level)
 		default:
-			x, binary := meansOf(or.FitData)
-			if kind == "values" {
-				for _, a := range inf.At {
-					k := slices.Index(p.Predictors, a.Predictor)
-					x[k] = a.Value
-					binary[k] = false
-				}
+			raw := or.representative(inf.At, kind == "values")
+			set.At = raw
+			set.AtLevels = or.levelsAt(raw)
+			var off []float64
+			if or.Data.Offset != nil {
+				off = []float64{weightedMean(or.Data.Offset, or.Data.Weights)}
 			}
-			set.At = x
-			set.Effects, err = res.MarginalEffectsAt(x, binary, level)
+			set.Effects, err = sourceEffects(or, res, raw, 1, off, nil, level)
 		}
 		if err != nil {
 			set.Error = err.Error()
@@ -71,17 +72,176 @@ func runInference(p *plan.Plan, or *OutcomeResult) error {
 	}
 	if inf.PredictPath != "" {
 		nr := &NewRows{File: inf.Predict}
-		rows, err := data.LoadRows(inf.PredictPath, p.Predictors, p.Data.Offset, p.Data.MissingValues)
+		sources := make([]string, len(or.Design.Sources))
+		levels := map[string][]string{}
+		for i, s := range or.Design.Sources {
+			sources[i] = s.Name
+			if s.Cat != nil {
+				levels[s.Name] = s.Cat.Levels
+			}
+		}
+		rows, err := data.LoadRowsLevels(inf.PredictPath, sources, levels, p.Data.Offset, p.Data.MissingValues)
 		if err != nil {
 			return fmt.Errorf("%s: inference.predict: %v", p.Path, err)
 		}
 		nr.Rows = rows
-		if nr.Pred, err = res.Predict(rows.X, rows.Offset); err != nil {
+		X, i, err := or.Design.Matrix(rows.X, rows.N)
+		if err != nil {
+			return fmt.Errorf("%s: inference.predict: %s:%d: %v", p.Path, rows.File, rows.Lines[i], err)
+		}
+		nr.Design = X
+		if nr.Pred, err = res.Predict(X, rows.Offset); err != nil {
 			nr.Error = err.Error()
 		}
 		or.NewRows = nr
 	}
 	return nil
+}
+
+// sourceEffects gives the marginal effects of every source variable (raw
+// column) of the outcome's design, averaged over the raw rows given (n x
+// S): for a categorical column the discrete change from its reference to
+// each coded level; for a numeric column taking only 0 and 1 in the data
+// the change from 0 to 1; for any other numeric column the derivative,
+// pushed through every design column the variable enters (transformation,
+// polynomial, spline, interaction).
+func sourceEffects(or *OutcomeResult, res *fit.Result, raw []float64, n int, off, w []float64, level float64) ([]fit.MarginalEffect, error) {
+	dz := or.Design
+	S, K := len(dz.Sources), len(dz.Columns)
+	var out []fit.MarginalEffect
+	design := func(set func(r []float64)) ([]float64, error) {
+		X := make([]float64, n*K)
+		r := make([]float64, S)
+		for i := 0; i < n; i++ {
+			copy(r, raw[i*S:(i+1)*S])
+			set(r)
+			if err := dz.Row(r, X[i*K:(i+1)*K]); err != nil {
+				return nil, err
+			}
+		}
+		return X, nil
+	}
+	for s, src := range dz.Sources {
+		if src.Cat != nil || or.binarySource(s) {
+			from, tos, labels := 0.0, []float64{1}, []string{"0 to 1"}
+			if src.Cat != nil {
+				kept, ref := dz.Coded(s)
+				from, tos, labels = float64(dz.Level(s, ref)), nil, nil
+				for _, l := range kept {
+					if l != ref {
+						tos = append(tos, float64(dz.Level(s, l)))
+						labels = append(labels, ref+" to "+l)
+					}
+				}
+			}
+			X0, err := design(func(r []float64) { r[s] = from })
+			if err != nil {
+				return nil, err
+			}
+			for t, to := range tos {
+				X1, err := design(func(r []float64) { r[s] = to })
+				if err != nil {
+					return nil, err
+				}
+				eff, err := res.AverageDifference(src.Name, X0, X1, off, w, level)
+				if err != nil {
+					return nil, err
+				}
+				for i := range eff {
+					eff[i].Change = labels[t]
+				}
+				out = append(out, eff...)
+			}
+			continue
+		}
+		X := make([]float64, n*K)
+		dX := make([]float64, n*K)
+		for i := 0; i < n; i++ {
+			if err := dz.Derivative(raw[i*S:(i+1)*S], s, X[i*K:(i+1)*K], dX[i*K:(i+1)*K]); err != nil {
+				return nil, err
+			}
+		}
+		eff, err := res.AverageSlope(src.Name, X, dX, off, w, level)
+		if err != nil {
+			return nil, err
+		}
+		for i := range eff {
+			eff[i].Change = "per unit"
+		}
+		out = append(out, eff...)
+	}
+	return out, nil
+}
+
+// binarySource reports whether numeric source s takes only 0 and 1.
+func (or *OutcomeResult) binarySource(s int) bool {
+	S := len(or.Design.Sources)
+	for i := 0; i < or.Data.N; i++ {
+		if v := or.Data.X[i*S+s]; v != 0 && v != 1 {
+			return false
+		}
+	}
+	return true
+}
+
+// representative is one raw row: numeric columns at their (weighted)
+// means over the rows used, categorical columns at their reference level,
+// then the plan's stated values (withAt).
+func (or *OutcomeResult) representative(at []plan.AtValue, withAt bool) []float64 {
+	dz := or.Design
+	S := len(dz.Sources)
+	raw := make([]float64, S)
+	for s, src := range dz.Sources {
+		if src.Cat != nil {
+			_, ref := dz.Coded(s)
+			raw[s] = float64(dz.Level(s, ref))
+			continue
+		}
+		col := make([]float64, or.Data.N)
+		for i := range col {
+			col[i] = or.Data.X[i*S+s]
+		}
+		raw[s] = weightedMean(col, or.Data.Weights)
+	}
+	if withAt {
+		for _, a := range at {
+			s := dz.Source(a.Predictor)
+			if s < 0 {
+				continue
+			}
+			if a.Level != "" {
+				raw[s] = float64(dz.Level(s, a.Level))
+			} else {
+				raw[s] = a.Value
+			}
+		}
+	}
+	return raw
+}
+
+// levelsAt names the level of each categorical column of a raw row ("" for
+// numeric columns).
+func (or *OutcomeResult) levelsAt(raw []float64) []string {
+	out := make([]string, len(raw))
+	for s, src := range or.Design.Sources {
+		if src.Cat != nil {
+			out[s] = src.Cat.Levels[int(raw[s])]
+		}
+	}
+	return out
+}
+
+func weightedMean(v, w []float64) float64 {
+	s, tot := 0.0, 0.0
+	for i, x := range v {
+		wi := 1.0
+		if w != nil {
+			wi = w[i]
+		}
+		s += wi * x
+		tot += wi
+	}
+	return s / tot
 }
 
 // hypothesisTests tests one hypothesis in every candidate model that has
@@ -112,33 +272,4 @@ func hypothesisTests(h plan.Hypothesis, or *OutcomeResult) []HypothesisResult {
 		out = append(out, HypothesisResult{Text: h.Text, Line: h.Line, Test: fit.Test{Name: "wald", Reason: reason}})
 	}
 	return out
-}
-
-// meansOf returns the weighted means of the predictors and which are 0/1.
-func meansOf(d *fit.Data) ([]float64, []bool) {
-	K := len(d.Predictors)
-	x := make([]float64, K)
-	binary := make([]bool, K)
-	tot := 0.0
-	for k := range binary {
-		binary[k] = true
-	}
-	for i := 0; i < d.N(); i++ {
-		w := 1.0
-		if d.Weights != nil {
-			w = d.Weights[i]
-		}
-		tot += w
-		for k := 0; k < K; k++ {
-			v := d.X[i*K+k]
-			x[k] += w * v
-			if v != 0 && v != 1 {
-				binary[k] = false
-			}
-		}
-	}
-	for k := range x {
-		x[k] /= tot
-	}
-	return x, binary
 }

@@ -98,19 +98,12 @@ func covarianceOf(p *plan.Plan) string {
 }
 
 func runOutcome(p *plan.Plan, oc plan.Outcome, opt Options, dataHash string) (*OutcomeResult, error) {
-	dopt := data.Options{
-		Outcome: oc.Column, Levels: oc.Categories, Predictors: p.Predictors,
-		Weights: p.Data.Weights, Offset: p.Data.Offset, Cluster: p.Data.Cluster,
-		Refuse: p.Data.Missing == "refuse", MissingTokens: p.Data.MissingValues,
-	}
-	ds, err := data.Load(p.Data.Path, dopt)
+	ds, dz, fd, dopt, err := loadDesign(p, oc)
 	if err != nil {
-		return nil, fmt.Errorf("%s (plan %s, outcome %q)", err, p.Path, oc.Column)
+		return nil, err
 	}
-	if len(ds.Unobserved) > 0 {
-		return nil, fmt.Errorf("%s: outcomes: %s: category %q is declared but never observed in the %d rows used; remove it from categories or merge it with a neighbour", p.Path, oc.Column, ds.Unobserved[0], ds.N)
-	}
-	or := &OutcomeResult{Outcome: oc, Data: ds, FitData: FitData(ds)}
+	or := &OutcomeResult{Outcome: oc, Data: ds, FitData: fd, Design: dz, Terms: termsOf(dz)}
+	or.Notes = append(or.Notes, dz.Notes...)
 	if err := fit.CheckDesign(or.FitData); err != nil {
 		return nil, fmt.Errorf("%s: outcome %q: %v", p.Data.File, oc.Column, err)
 	}
@@ -124,21 +117,25 @@ func runOutcome(p *plan.Plan, oc plan.Outcome, opt Options, dataHash string) (*O
 	// 1. The partial set of each approach: listed, or selected stepwise
 	// (with the plan's standard errors).
 	swopt := fopt
-	if sw := sandwichFor(p, ds); sw != nil {
+	if sw := sandwichFor(p, ds, or.FitData); sw != nil {
 		swopt.Sandwich = sw
 	}
-	or.FreeSets, or.Stepwise = freeSets(p, or.FitData, backward, swopt, opt.Workers)
+	or.FreeSets, or.Stepwise = freeSets(p, or.Terms, or.FitData, backward, swopt, opt.Workers)
 
 	// 2. The grid of candidate fits and the auxiliary fits the tests need.
-	jobs, notes := gridJobs(p, or.FreeSets, backward)
+	jobs, notes := gridJobs(p, or.Terms, or.FreeSets, backward)
 	or.Notes = append(or.Notes, notes...)
 	if opt.Executor != nil {
-		ctx := &ruleContext{outcome: oc.Column, dataFile: p.Data.File, dataHash: dataHash, dataOptions: dopt, fitOptions: fopt, sandwich: sandwichFor(p, ds)}
+		ctx := &ruleContext{outcome: oc.Column, dataFile: p.Data.File, dataHash: dataHash, dataOptions: dopt, fitOptions: fopt, sandwich: sandwichFor(p, ds, or.FitData)}
+		if !dz.Trivial() {
+			spec := p.DesignSpec(oc)
+			ctx.design = &spec
+		}
 		if err := remoteJobs(opt.Executor, jobs, ctx); err != nil {
 			return nil, err
 		}
 	} else {
-		runJobs(jobs, or.FitData, fopt, opt, oc.Column, sandwichFor(p, ds))
+		runJobs(jobs, or.FitData, fopt, opt, oc.Column, sandwichFor(p, ds, or.FitData))
 	}
 	or.Fits = jobs
 
@@ -164,14 +161,15 @@ func runOutcome(p *plan.Plan, oc plan.Outcome, opt Options, dataHash string) (*O
 	return or, nil
 }
 
-// freeSets returns the partial set of each approach.
-func freeSets(p *plan.Plan, d *fit.Data, backward bool, fopt fit.Options, workers int) ([]FreeSet, []StepwiseRecord) {
+// freeSets returns the partial set of each approach: terms, listed in
+// the plan or selected stepwise (each term's columns tested jointly).
+func freeSets(p *plan.Plan, terms []fit.Term, d *fit.Data, backward bool, fopt fit.Options, workers int) ([]FreeSet, []StepwiseRecord) {
 	var out []FreeSet
 	var sw []StepwiseRecord
 	sel := p.Models.Partial.Select
 	if sel == nil {
 		for _, a := range p.Models.Approaches {
-			out = append(out, FreeSet{Approach: a, Predictors: p.Models.Partial.Free, Source: "plan"})
+			out = append(out, FreeSet{Approach: a, Predictors: termsIn(terms, p.Models.Partial.Free), Source: "plan"})
 		}
 		return out, nil
 	}
@@ -187,7 +185,7 @@ func freeSets(p *plan.Plan, d *fit.Data, backward bool, fopt fit.Options, worker
 			defer func() { <-sem }()
 			c, _ := fit.ParseComparison(a)
 			l, _ := fit.ParseLink(link)
-			r := fit.Stepwise(d, fit.Model{Comparison: c, Backward: backward && c == fit.Stage, Link: l}, p.Predictors, sel.Alpha, sel.Test, fopt)
+			r := fit.StepwiseTerms(d, fit.Model{Comparison: c, Backward: backward && c == fit.Stage, Link: l}, terms, sel.Alpha, sel.Test, fopt)
 			sw[i] = StepwiseRecord{Approach: a, Link: link, Result: r}
 		}()
 	}
@@ -212,7 +210,7 @@ func freeFor(sets []FreeSet, approach string) []string {
 }
 
 // gridJobs lists the candidate fits in plan order, then the auxiliary fits.
-func gridJobs(p *plan.Plan, sets []FreeSet, backward bool) ([]*FitEntry, []string) {
+func gridJobs(p *plan.Plan, terms []fit.Term, sets []FreeSet, backward bool) ([]*FitEntry, []string) {
 	var jobs []*FitEntry
 	var notes []string
 	have := map[string]bool{}
@@ -224,10 +222,14 @@ func gridJobs(p *plan.Plan, sets []FreeSet, backward bool) ([]*FitEntry, []strin
 	}
 	var groups []Group
 	for _, g := range p.Models.Partial.Groups {
-		groups = append(groups, Group{Name: g.Name, Predictors: g.Predictors})
+		if cols := columnsOf(terms, g.Predictors); len(cols) > 0 {
+			groups = append(groups, Group{Name: g.Name, Predictors: cols})
+		}
 	}
+	cols := allColumns(terms)
 	for _, a := range p.Models.Approaches {
-		free := freeFor(sets, a)
+		freeTerms := freeFor(sets, a)
+		free := columnsOf(terms, freeTerms)
 		for _, l := range p.Models.Links {
 			for _, lv := range p.Models.Levels {
 				id := a + "/" + lv + "/" + l
@@ -238,7 +240,7 @@ func gridJobs(p *plan.Plan, sets []FreeSet, backward bool) ([]*FitEntry, []strin
 					notes = append(notes, fmt.Sprintf("%s not fitted: the partial set of the %s approach is empty, so the model equals %s/parallel/%s", id, a, a, l))
 					continue
 				}
-				if lv == LevelPartial && len(free) == len(p.Predictors) {
+				if lv == LevelPartial && len(freeTerms) == len(terms) {
 					notes = append(notes, fmt.Sprintf("%s not fitted: every predictor is in the partial set, so the model equals %s/nonparallel/%s", id, a, l))
 					continue
 				}
@@ -246,7 +248,7 @@ func gridJobs(p *plan.Plan, sets []FreeSet, backward bool) ([]*FitEntry, []strin
 				if lv == LevelConstrained && (len(g) == 0 || p.Models.Partial.Select != nil) {
 					g = []Group{{Predictors: free}}
 				}
-				spec, err := LevelSpec(a, backward && a == "stage", l, lv, p.Predictors, free, g)
+				spec, err := LevelSpec(a, backward && a == "stage", l, lv, cols, free, g)
 				e := &FitEntry{ID: id, Approach: a, Level: lv, Link: l, Spec: spec}
 				if err != nil {
 					e.Err = err.Error()
@@ -268,21 +270,21 @@ func gridJobs(p *plan.Plan, sets []FreeSet, backward bool) ([]*FitEntry, []strin
 				if have[id] {
 					continue
 				}
-				spec, _ := LevelSpec(a, backward && a == "stage", l, lv, p.Predictors, nil, nil)
+				spec, _ := LevelSpec(a, backward && a == "stage", l, lv, cols, nil, nil)
 				add(&FitEntry{ID: id, Approach: a, Level: lv, Link: l, Spec: spec, Auxiliary: true})
 			}
-			if !needPer || len(p.Predictors) < 2 {
+			if !needPer || len(terms) < 2 {
 				continue
 			}
-			for _, pred := range p.Predictors {
+			for _, t := range terms {
 				var np []string
-				for _, q := range p.Predictors {
-					if q != pred {
-						np = append(np, q)
+				for _, q := range terms {
+					if q.Name != t.Name {
+						np = append(np, q.Columns...)
 					}
 				}
-				spec := Spec{Approach: a, Backward: backward && a == "stage", Link: l, Predictors: p.Predictors, Nonparallel: np}
-				add(&FitEntry{ID: auxID(a, pred, l), Approach: a, Level: "only-" + pred + "-parallel", Link: l, Spec: spec, Auxiliary: true})
+				spec := Spec{Approach: a, Backward: backward && a == "stage", Link: l, Predictors: cols, Nonparallel: np}
+				add(&FitEntry{ID: auxID(a, t.Name, l), Approach: a, Level: "only-" + t.Name + "-parallel", Link: l, Spec: spec, Auxiliary: true})
 			}
 		}
 	}
@@ -339,12 +341,11 @@ func runJobs(jobs []*FitEntry, d *fit.Data, fopt fit.Options, opt Options, outco
 
 // sandwichFor returns the step that replaces a fit's covariance by the
 // sandwich, or nil when the plan uses model-based errors.
-func sandwichFor(p *plan.Plan, ds *data.Dataset) func(*fit.Result) error {
+func sandwichFor(p *plan.Plan, ds *data.Dataset, d *fit.Data) func(*fit.Result) error {
 	cov := covarianceOf(p)
 	if cov != "robust" && cov != "robust_hc0" && cov != "cluster" {
 		return nil
 	}
-	d := FitData(ds)
 	var clusters []string
 	if cov == "cluster" {
 		clusters = ds.Cluster

@@ -1,6 +1,9 @@
 package runner
 
 import (
+	"fmt"
+	"slices"
+
 	"ordplan/plan"
 	"ordplan/runner/fit"
 )
@@ -40,7 +43,7 @@ func testBlock(p *plan.Plan, or *OutcomeResult, approach, link string, fopt fit.
 			tb.Global = append(tb.Global, scoreOf(d, par, np))
 		case "wald":
 			if np.OK() {
-				tb.Global = append(tb.Global, fit.WaldEqualSlopes(np.Result, p.Predictors))
+				tb.Global = append(tb.Global, fit.WaldEqualSlopes(np.Result, allColumns(or.Terms)))
 			} else {
 				tb.Global = append(tb.Global, missingTest("wald", "the nonparallel model has no usable fit"))
 			}
@@ -59,7 +62,8 @@ func testBlock(p *plan.Plan, or *OutcomeResult, approach, link string, fopt fit.
 			}
 		}
 	}
-	for k, pred := range p.Predictors {
+	for _, term := range or.Terms {
+		pred := term.Name
 		vt := VarTests{Predictor: pred}
 		for _, name := range p.Tests.ParallelLines {
 			if pw && name != "wald" {
@@ -68,16 +72,14 @@ func testBlock(p *plan.Plan, or *OutcomeResult, approach, link string, fopt fit.
 			switch name {
 			case "brant":
 				if brant != nil && brant.OK {
-					t := brant.PerVariable[k]
-					t.Name = "brant"
-					vt.Tests = append(vt.Tests, t)
+					vt.Tests = append(vt.Tests, brantTerm(brant, d, term))
 				}
 			case "wald":
 				if np.OK() {
-					vt.Tests = append(vt.Tests, fit.WaldEqualSlopes(np.Result, []string{pred}))
+					vt.Tests = append(vt.Tests, fit.WaldEqualSlopes(np.Result, term.Columns))
 				}
 			case "lr":
-				if len(p.Predictors) > 1 {
+				if len(or.Terms) > 1 {
 					vt.Tests = append(vt.Tests, lrOf(or.Find(auxID(approach, pred, link)), np))
 				} else {
 					vt.Tests = append(vt.Tests, lrOf(par, np))
@@ -85,7 +87,7 @@ func testBlock(p *plan.Plan, or *OutcomeResult, approach, link string, fopt fit.
 			case "score":
 				if par.OK() {
 					spec := par.Spec
-					spec.Nonparallel = []string{pred}
+					spec.Nonparallel = term.Columns
 					if m, err := spec.Model(); err == nil {
 						vt.Tests = append(vt.Tests, fit.ScoreTest(d, par.Result, m))
 					}
@@ -135,4 +137,18 @@ func scoreOf(d *fit.Data, par, np *FitEntry) fit.Test {
 		return missingTest("score", err.Error())
 	}
 	return fit.ScoreTest(d, par.Result, m)
+}
+
+// brantTerm is the Brant test of one term: the per-column test for a
+// single-column term; a term of several columns needs the joint test,
+// which the Brant computation does not give, so it is reported as not
+// computed (the Wald, LR and score tests cover such terms jointly).
+func brantTerm(b *fit.BrantResult, d *fit.Data, term fit.Term) fit.Test {
+	if len(term.Columns) != 1 {
+		return missingTest("brant", fmt.Sprintf("a term of %d columns is tested jointly by the Wald, likelihood-ratio and score tests; the Brant test is reported per single-column term only", len(term.Columns)))
+	}
+	k := slices.Index(d.Predictors, term.Columns[0])
+	t := b.PerVariable[k]
+	t.Name = "brant"
+	return t
 }

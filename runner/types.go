@@ -4,6 +4,7 @@ import (
 	"ordplan/plan"
 	"ordplan/plan/lock"
 	"ordplan/runner/data"
+	"ordplan/runner/design"
 	"ordplan/runner/fit"
 )
 
@@ -25,6 +26,8 @@ type OutcomeResult struct {
 	Outcome  plan.Outcome
 	Data     *data.Dataset
 	FitData  *fit.Data
+	Design   *design.Design   // how the terms became FitData's columns
+	Terms    []fit.Term       // the outcome's terms with their columns
 	FreeSets []FreeSet        // the partial set of each approach
 	Stepwise []StepwiseRecord // when the partial set is selected
 	Fits     []*FitEntry      // candidates first (grid order), then auxiliary fits
@@ -43,7 +46,7 @@ type OutcomeResult struct {
 	NewRows    *NewRows           // predictions for the plan's new rows
 }
 
-// FreeSet is the set of predictors allowed to vary in partial and
+// FreeSet is the set of terms allowed to vary in partial and
 // constrained models of one approach, and where it came from.
 type FreeSet struct {
 	Approach   string

@@ -249,7 +249,7 @@ func catalogue(dir string) (items []badInput) {
 	items = []badInput{
 		// Plans.
 		{id: "P1", name: "unknown key", args: []string{"check"}, plan: edit("predictors:", "predictorz: [a]\npredictors:"), code: 1,
-			want: []string{`P1.yaml:6:1: predictorz: unknown key "predictorz" (allowed: version, title, seed, data, outcomes, predictors, models, tests, rules, covariance, report, inference`}},
+			want: []string{`P1.yaml:6:1: predictorz: unknown key "predictorz" (allowed: version, title, seed, data, outcomes, subset, categorical, predictors, models, tests, rules, covariance, report, inference`}},
 		{id: "P2", name: "unknown nested key", args: []string{"check"}, plan: edit("  file: d.csv\n", "  file: d.csv\n  colour: red\n"), code: 1,
 			want: []string{`P2.yaml:4:3: data.colour: unknown key "colour" (allowed: file, missing, missing_values, weights, weight_kind, offset, cluster)`}},
 		{id: "P3", name: "wrong type: a number for a list", args: []string{"check"}, plan: edit("predictors: [a, b]", "predictors: 3"), code: 1,

@@ -10,6 +10,13 @@ import (
 type DropCount struct {
 	Column string
 	Rows   int
+	Subset bool `json:"subset,omitempty"` // dropped by the plan's subset, not for a missing value
+}
+
+// LevelRef is one level of a categorical predictor column.
+type LevelRef struct {
+	Column string
+	Level  string
 }
 
 // Dataset is the analysis data set: the kept rows of the file, with the
@@ -37,6 +44,12 @@ type Dataset struct {
 	// Unobserved lists declared levels that no kept row has. Reading does
 	// not refuse them; the caller decides.
 	Unobserved []string
+	// UnobservedLevels lists declared levels of categorical predictors
+	// that no kept row has.
+	UnobservedLevels []LevelRef
+	// RowsOutside is the number of rows the subset conditions dropped
+	// (included in RowsDropped).
+	RowsOutside int
 }
 
 // NObs returns the number of observations: the sum of the weights, or N
@@ -64,8 +77,12 @@ func (d *Dataset) DropSummary() string {
 	if d.RowsDropped == 0 {
 		return "no rows dropped for missing values"
 	}
-	return fmt.Sprintf("%d of %d rows dropped for missing values or zero weight (%s)",
-		d.RowsDropped, d.RowsRead, dropList(d.Dropped))
+	why := "missing values or zero weight"
+	if d.RowsOutside > 0 {
+		why = "the subset, missing values or zero weight"
+	}
+	return fmt.Sprintf("%d of %d rows dropped for %s (%s)",
+		d.RowsDropped, d.RowsRead, why, dropList(d.Dropped))
 }
 
 func dropList(dc []DropCount) string {

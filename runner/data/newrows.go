@@ -27,6 +27,13 @@ type Rows struct {
 // missing value are skipped and their lines listed; bad values are errors
 // naming the line and column.
 func LoadRows(path string, predictors []string, offset string, missingTokens []string) (*Rows, error) {
+	return LoadRowsLevels(path, predictors, nil, offset, missingTokens)
+}
+
+// LoadRowsLevels is LoadRows with categorical columns: the cells of a
+// column in levels must be one of its levels and are stored as the level's
+// index; a level not listed is an error naming the line and column.
+func LoadRowsLevels(path string, predictors []string, levels map[string][]string, offset string, missingTokens []string) (*Rows, error) {
 	raw, err := os.ReadFile(path)
 	if err != nil {
 		return nil, &Error{File: path, Msg: "cannot open file: " + osReason(err), Err: err}
@@ -82,7 +89,22 @@ func LoadRows(path string, predictors []string, offset string, missingTokens []s
 				skip = true
 				break
 			}
-			v, msg := parseNumber(cell)
+			var v float64
+			var msg string
+			if lv, cat := levels[c]; cat && j < K {
+				l := -1
+				for i, x := range lv {
+					if x == cell {
+						l = i
+					}
+				}
+				if l < 0 {
+					msg = "value " + quoteCell(cell) + " is not one of the declared levels of this categorical predictor: " + quoteList(lv)
+				}
+				v = float64(l)
+			} else {
+				v, msg = parseNumber(cell)
+			}
 			if msg != "" {
 				return nil, &Error{File: path, Line: line, Column: c, Msg: msg}
 			}

@@ -12,10 +12,18 @@ type Options struct {
 	// the outcome must hold integer codes and the levels are the distinct
 	// codes observed, sorted numerically, labelled by their decimal text.
 	Levels     []string
-	Predictors []string // numeric predictor columns, in the order wanted
-	Weights    string   // optional column of positive weights ("" = none)
-	Offset     string   // optional numeric offset column
-	Cluster    string   // optional cluster id column (kept as strings)
+	Predictors []string // predictor columns, in the order wanted
+	// PredictorLevels declares categorical predictor columns: the cell
+	// text must be one of the listed levels and is stored in X as the
+	// level's index (0-based). A level no kept row has is listed in
+	// Dataset.UnobservedLevels.
+	PredictorLevels map[string][]string
+	// Keep lists conditions a row must meet to be used; the others are
+	// dropped and counted, like rows with missing values.
+	Keep    []Condition
+	Weights string // optional column of positive weights ("" = none)
+	Offset  string // optional numeric offset column
+	Cluster string // optional cluster id column (kept as strings)
 	// Refuse makes a missing value in a used column an error instead of a
 	// reason to drop the row.
 	Refuse bool
@@ -37,10 +45,11 @@ const (
 	roleWeights
 	roleOffset
 	roleCluster
+	roleSubset
 )
 
 func (r role) String() string {
-	return [...]string{"outcome", "predictor", "weights", "offset", "cluster"}[r]
+	return [...]string{"outcome", "predictor", "weights", "offset", "cluster", "subset"}[r]
 }
 
 // usedCol is a column the options ask for, with its place in the header.
@@ -73,6 +82,16 @@ func (o *Options) plan() ([]usedCol, error) {
 		}
 	}
 	seen := map[string]role{}
+	for _, c := range cols {
+		seen[c.name] = c.role
+	}
+	for i, k := range o.Keep {
+		if _, used := seen[k.Column]; !used {
+			cols = append(cols, usedCol{name: k.Column, role: roleSubset, pos: i})
+			seen[k.Column] = roleSubset
+		}
+	}
+	seen = map[string]role{}
 	for _, c := range cols {
 		if r, ok := seen[c.name]; ok {
 			if r == c.role {

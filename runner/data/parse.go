@@ -46,3 +46,14 @@ func describeMissing(cell string) string {
 	}
 	return quoteCell(cell)
 }
+
+// isNumberLike reports whether a cell starts like a number (a sign, a
+// digit or a point), so that a failed parse is a malformed number rather
+// than text.
+func isNumberLike(cell string) bool {
+	if cell == "" {
+		return false
+	}
+	c := cell[0]
+	return c == '+' || c == '-' || c == '.' || c >= '0' && c <= '9'
+}

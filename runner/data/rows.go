@@ -25,6 +25,22 @@ func (r *reader) rows() (*Dataset, error) {
 	}
 	var codes []int64 // outcome codes of kept rows, when no labels are declared
 	drops := make([]int, len(r.cols))
+	// the used column of each subset condition, the rows each drops, and
+	// the level index of each categorical predictor
+	condCol := make([]int, len(opt.Keep))
+	for i, k := range opt.Keep {
+		condCol[i] = slices.IndexFunc(r.cols, func(c usedCol) bool { return c.name == k.Column })
+	}
+	subsetDrops := make([]int, len(opt.Keep))
+	levelIndex := map[string]map[string]int{}
+	levelSeen := map[string][]float64{}
+	for col, lv := range opt.PredictorLevels {
+		levelIndex[col] = map[string]int{}
+		for i, l := range lv {
+			levelIndex[col][l] = i
+		}
+		levelSeen[col] = make([]float64, len(lv))
+	}
 	zeroWeight := 0 // rows with frequency weight 0 stand for no observation
 	xs := make([]float64, d.K)
 	for {
@@ -36,9 +52,30 @@ func (r *reader) rows() (*Dataset, error) {
 			return nil, r.csvErr(err, rec)
 		}
 		d.RowsRead++
+		out := -1
+		for i, k := range opt.Keep {
+			c := r.cols[condCol[i]]
+			cell := strings.TrimSpace(rec[c.index])
+			ok, msg := k.keeps(cell, r.missing[cell])
+			if msg != "" {
+				line, _ := r.cr.FieldPos(c.index)
+				return nil, r.fail(line, c.name, "%s", msg)
+			}
+			if !ok {
+				out = i
+				break
+			}
+		}
+		if out >= 0 {
+			subsetDrops[out]++
+			continue
+		}
 		miss := -1
 		y, code, w, off, cl := 0, int64(0), 1.0, 0.0, ""
 		for ci, c := range r.cols {
+			if c.role == roleSubset {
+				continue
+			}
 			cell := strings.TrimSpace(rec[c.index])
 			line, _ := r.cr.FieldPos(c.index)
 			if r.missing[cell] {
@@ -63,7 +100,15 @@ func (r *reader) rows() (*Dataset, error) {
 					code, msg = parseCode(cell)
 				}
 			case rolePredictor:
-				xs[c.pos], msg = parseNumber(cell)
+				if idx, cat := levelIndex[c.name]; cat {
+					l, ok := idx[cell]
+					if !ok {
+						msg = "value " + quoteCell(cell) + " is not one of the declared levels of this categorical predictor: " + quoteList(opt.PredictorLevels[c.name]) + " (add it to the levels, or list it among the missing-value markers)"
+					}
+					xs[c.pos] = float64(l)
+				} else if xs[c.pos], msg = parseNumber(cell); strings.HasSuffix(msg, " is not a number") && !isNumberLike(cell) {
+					msg += "; the column holds text: declare it categorical (under categorical: with its levels) to use it as a predictor"
+				}
 			case roleWeights:
 				w, msg = parseNumber(cell)
 				if msg == "" && w < 0 {
@@ -87,6 +132,11 @@ func (r *reader) rows() (*Dataset, error) {
 			continue
 		}
 		line, _ := r.cr.FieldPos(0)
+		for _, c := range r.cols {
+			if c.role == rolePredictor && levelSeen[c.name] != nil {
+				levelSeen[c.name][int(xs[c.pos])] += w
+			}
+		}
 		d.Lines = append(d.Lines, line)
 		d.Y = append(d.Y, y)
 		codes = append(codes, code)
@@ -115,8 +165,30 @@ func (r *reader) rows() (*Dataset, error) {
 		d.Dropped = append(d.Dropped, DropCount{Column: opt.Weights + " = 0", Rows: zeroWeight})
 		d.RowsDropped += zeroWeight
 	}
+	for i, n := range subsetDrops {
+		if n > 0 {
+			d.Dropped = append(d.Dropped, DropCount{Column: "outside the subset " + opt.Keep[i].String(), Rows: n, Subset: true})
+			d.RowsDropped += n
+			d.RowsOutside += n
+		}
+	}
+	if d.N == 0 && d.RowsOutside == d.RowsRead {
+		return nil, r.fail(0, "", "the subset keeps no rows: all %d data rows fail its conditions (%s)", d.RowsRead, dropList(d.Dropped))
+	}
+	for _, col := range opt.Predictors {
+		if seen := levelSeen[col]; seen != nil {
+			for l, c := range seen {
+				if c == 0 {
+					d.UnobservedLevels = append(d.UnobservedLevels, LevelRef{Column: col, Level: opt.PredictorLevels[col][l]})
+				}
+			}
+		}
+	}
 	if d.N == 0 {
 		why := "missing values"
+		if d.RowsOutside > 0 {
+			why = "missing values or the subset"
+		}
 		if zeroWeight > 0 {
 			why = "missing values or zero weight"
 		}

@@ -31,6 +31,15 @@ type StepwiseResult struct {
 	Start     *Result `json:"-"`
 }
 
+// Term is a named group of predictor columns that share one effect
+// structure (a categorical predictor's columns, a spline basis, an
+// interaction): selection makes all of them parallel at once and tests
+// them jointly.
+type Term struct {
+	Name    string
+	Columns []string
+}
+
 // Stepwise selects parallel constraints backward: start with the candidate
 // predictors nonparallel (the others parallel); at each step test each free
 // predictor for equal slopes in the current model (Wald, observed
@@ -38,6 +47,16 @@ type StepwiseResult struct {
 // make parallel the one with the largest p-value at or above alpha; stop
 // when none qualifies. base supplies the comparison, direction and link.
 func Stepwise(d *Data, base Model, candidates []string, alpha float64, test string, opt Options) *StepwiseResult {
+	terms := make([]Term, len(candidates))
+	for i, c := range candidates {
+		terms[i] = Term{Name: c, Columns: []string{c}}
+	}
+	return StepwiseTerms(d, base, terms, alpha, test, opt)
+}
+
+// StepwiseTerms is Stepwise over terms: each candidate is a group of
+// columns tested jointly (df: columns x (J-2)) and made parallel together.
+func StepwiseTerms(d *Data, base Model, candidates []Term, alpha float64, test string, opt Options) *StepwiseResult {
 	sr := &StepwiseResult{Alpha: alpha, Test: test}
 	if test == "" {
 		sr.Test = "wald"
@@ -48,13 +67,21 @@ func Stepwise(d *Data, base Model, candidates []string, alpha float64, test stri
 	}
 	K := len(d.Predictors)
 	eff := allEffects(K, Parallel)
-	for _, c := range candidates {
-		k := indexOf(d.Predictors, c)
-		if k < 0 {
-			sr.Reason = fmt.Sprintf("candidate %q is not a predictor", c)
-			return sr
+	cols := make([][]int, len(candidates))
+	for i, c := range candidates {
+		for _, name := range c.Columns {
+			k := indexOf(d.Predictors, name)
+			if k < 0 {
+				sr.Reason = fmt.Sprintf("candidate %q is not a predictor", name)
+				return sr
+			}
+			eff[k] = Nonparallel
+			cols[i] = append(cols[i], k)
 		}
-		eff[k] = Nonparallel
+	}
+	free := make([]bool, len(candidates))
+	for i := range free {
+		free[i] = true
 	}
 	model := base
 	model.Effects = eff
@@ -64,6 +91,13 @@ func Stepwise(d *Data, base Model, candidates []string, alpha float64, test stri
 			err = opt.Sandwich(r)
 		}
 		return r, err
+	}
+	withParallel := func(m Model, i int) Model {
+		m.Effects = append([]Effect(nil), m.Effects...)
+		for _, k := range cols[i] {
+			m.Effects[k] = Parallel
+		}
+		return m
 	}
 	cur, err := fitOne(model)
 	if err != nil {
@@ -76,68 +110,65 @@ func Stepwise(d *Data, base Model, candidates []string, alpha float64, test stri
 	}
 	sr.Start = cur
 	var imposed []string
+	var imposedCols []string
 	for step := 1; ; step++ {
 		st := StepwiseStep{Step: step, LogLik: cur.LogLik}
 		best, bestP := -1, -1.0
 		var bestFit *Result
-		for k, e := range cur.Model.Effects {
-			if e != Nonparallel {
+		for i, c := range candidates {
+			if !free[i] {
 				continue
 			}
 			var t Test
 			var alt *Result
 			if sr.Test == "wald" {
-				t = WaldEqualSlopes(cur, []string{d.Predictors[k]})
+				t = WaldEqualSlopes(cur, c.Columns)
 			} else {
-				m := cur.Model
-				m.Effects = append([]Effect(nil), cur.Model.Effects...)
-				m.Effects[k] = Parallel
-				alt, err = fitOne(m)
+				alt, err = fitOne(withParallel(cur.Model, i))
 				if err != nil {
 					t = failedTest("lr", "%v", err)
 				} else {
 					t = LRTest(alt, cur)
 				}
 			}
-			t.Name = d.Predictors[k]
+			t.Name = c.Name
 			st.Tests = append(st.Tests, t)
 			if t.OK && t.P > bestP {
-				best, bestP, bestFit = k, t.P, alt
+				best, bestP, bestFit = i, t.P, alt
 			}
 		}
 		if best < 0 || bestP < alpha {
 			sr.Steps = append(sr.Steps, st)
 			break
 		}
-		st.Imposed, st.P = d.Predictors[best], bestP
+		st.Imposed, st.P = candidates[best].Name, bestP
 		sr.Steps = append(sr.Steps, st)
-		imposed = append(imposed, d.Predictors[best])
+		imposed = append(imposed, candidates[best].Name)
+		imposedCols = append(imposedCols, candidates[best].Columns...)
+		free[best] = false
 		if bestFit == nil {
-			m := cur.Model
-			m.Effects = append([]Effect(nil), cur.Model.Effects...)
-			m.Effects[best] = Parallel
-			bestFit, err = fitOne(m)
+			bestFit, err = fitOne(withParallel(cur.Model, best))
 			if err != nil {
 				sr.Reason = err.Error()
 				return sr
 			}
 		}
 		if !bestFit.OK() {
-			sr.Reason = fmt.Sprintf("after making %s parallel the model has no usable fit (%s)", d.Predictors[best], bestFit.Status)
+			sr.Reason = fmt.Sprintf("after making %s parallel the model has no usable fit (%s)", candidates[best].Name, bestFit.Status)
 			return sr
 		}
 		cur = bestFit
 	}
 	sr.Final = cur
-	for k, e := range cur.Model.Effects {
-		if e == Nonparallel {
-			sr.FinalNonparallel = append(sr.FinalNonparallel, d.Predictors[k])
+	for i, c := range candidates {
+		if free[i] {
+			sr.FinalNonparallel = append(sr.FinalNonparallel, c.Name)
 		}
 	}
 	sr.FinalParallel = imposed
 	if len(imposed) > 0 {
 		if sr.Test == "wald" {
-			sr.FinalTest = WaldEqualSlopes(sr.Start, imposed)
+			sr.FinalTest = WaldEqualSlopes(sr.Start, imposedCols)
 		} else {
 			sr.FinalTest = LRTest(cur, sr.Start)
 		}

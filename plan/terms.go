@@ -1,0 +1,439 @@
+package plan
+
+import (
+	"slices"
+	"strings"
+
+	"gopkg.in/yaml.v3"
+
+	"ordplan/runner/data"
+	"ordplan/runner/design"
+)
+
+// CategoricalColumn is one entry of the `categorical` section: a column
+// read as text (or as integer codes) whose values are the listed levels.
+type CategoricalColumn struct {
+	Column string
+	Key    string // plan key, e.g. categorical.site
+	design.Categorical
+}
+
+var (
+	categoricalKeys = []string{"levels", "reference", "coding", "ordered", "unobserved"}
+	codingWords     = []string{design.Treatment, design.Sum, design.Successive}
+	unobservedWords = []string{design.UnobservedRefuse, design.UnobservedDrop}
+	termKeys        = []string{"name", "column", "log", "sqrt", "centre", "scale", "poly", "spline", "interact"}
+	logKeys         = []string{"shift"}
+	polyKeys        = []string{"degree", "basis"}
+	polyBasisWords  = []string{"orthogonal", "raw"}
+	splineKeys      = []string{"knots", "quantiles"}
+)
+
+// decodeCategorical reads the categorical section: column: {levels, ...}.
+func (d *decoder) decodeCategorical(n *yaml.Node) []CategoricalColumn {
+	n = deref(n)
+	if n.Kind != yaml.MappingNode {
+		d.errorf(n, "categorical", "want a mapping of column: {levels: [...], ...}, got %s", describe(n))
+		return nil
+	}
+	var out []CategoricalColumn
+	seen := map[string]int{}
+	for i := 0; i+1 < len(n.Content); i += 2 {
+		k := deref(n.Content[i])
+		path := childPath("categorical", k.Value)
+		if line, dup := seen[k.Value]; dup {
+			d.errorf(k, path, "column is given twice (first at line %d)", line)
+			continue
+		}
+		seen[k.Value] = k.Line
+		d.record(path, n.Content[i+1])
+		c := CategoricalColumn{Column: k.Value, Key: path}
+		c.Coding, c.Unobserved = design.Treatment, design.UnobservedRefuse
+		m := d.mapping(n.Content[i+1], path, categoricalKeys)
+		if m == nil {
+			continue
+		}
+		if v := m.required("levels"); v != nil {
+			if list, ok := d.names(v, m.at("levels")); ok && d.clean(m.at("levels")) {
+				if len(list) < 2 {
+					d.errorf(deref(v), m.at("levels"), "a categorical predictor needs at least 2 levels, got %d", len(list))
+				}
+				c.Levels = list
+			}
+		}
+		m.name("reference", &c.Reference)
+		m.word("coding", "coding", codingWords, &c.Coding)
+		m.boolean("ordered", &c.Ordered)
+		m.word("unobserved", "handling of an unobserved level", unobservedWords, &c.Unobserved)
+		if c.Reference != "" && c.Levels != nil && !slices.Contains(c.Levels, c.Reference) {
+			d.errAt(m.at("reference"), "reference level %s is not among the levels (%s)", quote(c.Reference), strings.Join(c.Levels, ", "))
+		}
+		if c.Coding == design.Successive && !c.Ordered && d.clean(m.at("coding")) {
+			d.errAt(m.at("coding"), "successive-difference coding is for ordered levels; add ordered: true (the levels are then in the order listed)")
+		}
+		if c.Coding == design.Successive && m.get("reference") != nil && c.Reference != c.Levels[0] {
+			d.errAt(m.at("reference"), "successive-difference coding compares each level with the one before; the reference is the first level (%s)", quote(c.Levels[0]))
+		}
+		if c.Reference == "" && len(c.Levels) > 0 {
+			c.Reference = c.Levels[0]
+		}
+		out = append(out, c)
+	}
+	return out
+}
+
+// decodeTerms reads a predictor list: each item a column name or a
+// mapping describing one term. It returns the term names (Predictors)
+// and the terms.
+func (d *decoder) decodeTerms(n *yaml.Node, path string) ([]string, []design.TermSpec) {
+	items, ok := d.list(n, path)
+	if !ok {
+		return nil, nil
+	}
+	var names []string
+	var terms []design.TermSpec
+	seen := map[string]int{}
+	for i, it := range items {
+		p := itemPath(path, i)
+		var t design.TermSpec
+		if deref(it).Kind == yaml.MappingNode {
+			var ok bool
+			if t, ok = d.decodeTerm(it, p); !ok {
+				continue
+			}
+		} else {
+			s, ok := d.name(it, p)
+			if !ok {
+				continue
+			}
+			t = design.TermSpec{Name: s, Source: s, Key: p}
+		}
+		if line, dup := seen[t.Name]; dup {
+			d.errorf(deref(it), p, "%s is listed twice (first at line %d)", quote(t.Name), line)
+			continue
+		}
+		seen[t.Name] = deref(it).Line
+		names = append(names, t.Name)
+		terms = append(terms, t)
+	}
+	return names, terms
+}
+
+// decodeTerm reads one term written as a mapping.
+func (d *decoder) decodeTerm(n *yaml.Node, path string) (design.TermSpec, bool) {
+	t := design.TermSpec{Key: path}
+	m := d.mapping(n, path, termKeys)
+	if m == nil {
+		return t, false
+	}
+	before := len(d.errs)
+	m.name("name", &t.Name)
+	if v := m.get("interact"); v != nil {
+		if m.get("column") != nil {
+			d.errAt(m.at("interact"), "a term is either a column (column: ...) or an interaction (interact: [...]), not both")
+		}
+		list, ok := d.names(v, m.at("interact"))
+		if ok && len(list) < 2 {
+			d.errorf(deref(v), m.at("interact"), "an interaction needs at least two terms, got %d", len(list))
+		}
+		t.Interact = list
+		for _, k := range []string{"log", "sqrt", "centre", "scale", "poly", "spline"} {
+			if m.get(k) != nil {
+				d.errAt(m.at(k), "an interaction multiplies terms as they are; transform a column in its own term and name that term in interact")
+			}
+		}
+		if t.Name == "" {
+			t.Name = strings.Join(list, "&")
+		}
+		return t, len(d.errs) == before
+	}
+	if v := m.required("column"); v != nil {
+		t.Source, _ = d.name(v, m.at("column"))
+	}
+	tr := &t.Transform
+	var parts []string
+	if v := m.get("log"); v != nil {
+		tr.Log = true
+		parts = append(parts, "log")
+		if dv := deref(v); dv.Kind == yaml.MappingNode {
+			lm := d.mapping(v, m.at("log"), logKeys)
+			if s := lm.get("shift"); s != nil {
+				tr.Shift, _ = d.number(s, lm.at("shift"))
+			}
+		} else if b, ok := d.boolean(v, m.at("log")); ok && !b {
+			tr.Log = false
+			parts = parts[:0]
+		}
+	}
+	if v := m.get("sqrt"); v != nil {
+		if b, ok := d.boolean(v, m.at("sqrt")); ok && b {
+			tr.Sqrt = true
+			parts = append(parts, "sqrt")
+		}
+		if tr.Log && tr.Sqrt {
+			d.errAt(m.at("sqrt"), "give log or sqrt, not both")
+		}
+	}
+	if v := m.get("centre"); v != nil {
+		dv := deref(v)
+		if dv.Kind == yaml.ScalarNode && dv.ShortTag() == "!!str" {
+			if dv.Value != "mean" {
+				d.errorf(dv, m.at("centre"), "want mean or a number, got %s", describe(dv))
+			}
+			tr.Centre = "mean"
+		} else if x, ok := d.number(v, m.at("centre")); ok {
+			tr.Centre, tr.CentreAt = "value", x
+		}
+		parts = append(parts, "c")
+	}
+	if v := m.get("scale"); v != nil {
+		if _, ok := d.word(v, m.at("scale"), "scale", []string{"sd"}); ok {
+			tr.Scale = true
+			parts = append(parts, "s")
+		}
+	}
+	if v := m.get("poly"); v != nil {
+		tr.Poly = 0
+		pm := d.mapping(v, m.at("poly"), polyKeys)
+		if pm != nil {
+			if dg := pm.required("degree"); dg != nil {
+				if k, ok := d.integer(dg, pm.at("degree")); ok {
+					if k < 1 || k > 10 {
+						d.errorf(deref(dg), pm.at("degree"), "degree %d is out of range (want 1 to 10)", k)
+					} else {
+						tr.Poly = int(k)
+					}
+				}
+			}
+			basis := "orthogonal"
+			pm.word("basis", "polynomial basis", polyBasisWords, &basis)
+			tr.PolyRaw = basis == "raw"
+		}
+		parts = append(parts, "poly")
+	}
+	if v := m.get("spline"); v != nil {
+		if m.get("poly") != nil {
+			d.errAt(m.at("spline"), "give poly or spline, not both")
+		}
+		sm := d.mapping(v, m.at("spline"), splineKeys)
+		if sm != nil {
+			kn, qu := sm.get("knots"), sm.get("quantiles")
+			switch {
+			case kn != nil && qu != nil:
+				d.errAt(sm.at("quantiles"), "give knots or quantiles, not both")
+			case kn != nil:
+				tr.Knots = d.increasing(kn, sm.at("knots"), false)
+			case qu != nil:
+				tr.Quantiles = d.increasing(qu, sm.at("quantiles"), true)
+			default:
+				d.errAt(m.at("spline"), "a spline needs knots: [values] or quantiles: [probabilities]")
+			}
+		}
+		parts = append(parts, "spline")
+	}
+	if t.Name == "" {
+		t.Name = strings.Join(append([]string{t.Source}, parts...), ".")
+	}
+	return t, len(d.errs) == before
+}
+
+// increasing reads at least 3 strictly increasing numbers (probabilities
+// in [0, 1] when prob).
+func (d *decoder) increasing(n *yaml.Node, path string, prob bool) []float64 {
+	items, ok := d.list(n, path)
+	if !ok {
+		return nil
+	}
+	var out []float64
+	for i, it := range items {
+		x, ok := d.number(it, itemPath(path, i))
+		if !ok {
+			return nil
+		}
+		if prob && (x < 0 || x > 1) {
+			d.errorf(deref(it), itemPath(path, i), "%v is not a probability (want 0 to 1)", x)
+			return nil
+		}
+		if i > 0 && !(x > out[i-1]) {
+			d.errorf(deref(it), itemPath(path, i), "knots must be strictly increasing (%v follows %v)", x, out[i-1])
+			return nil
+		}
+		out = append(out, x)
+	}
+	if len(out) < 3 {
+		d.errorf(deref(n), path, "a natural cubic spline needs at least 3 knots (2 boundary knots and 1 inside), got %d", len(out))
+		return nil
+	}
+	return out
+}
+
+// checkTerms checks the terms against the categorical section: a
+// categorical column is not transformed, an interaction names terms
+// listed before it, and term names are usable as column names.
+func (d *decoder) checkTerms(p *Plan, terms []design.TermSpec, listKey string) {
+	names := map[string]bool{}
+	for _, t := range terms {
+		plain := len(t.Interact) == 0 && t.Transform.Empty() && p.categorical(t.Source) == nil
+		if bad := badNameChars(t.Name); bad != "" && !plain && d.clean(t.Key) {
+			d.errAt(t.Key, "term name %s contains %s, which cannot be part of a column name (names are used in hypotheses and in the command line's group syntax); give the term a name with name:", quote(t.Name), bad)
+		}
+		if len(t.Interact) > 0 {
+			for _, c := range t.Interact {
+				if !names[c] {
+					d.errAt(t.Key+".interact", "%s is not a term listed before this interaction in %s (interactions name earlier terms, e.g. interact: [treat, age])", quote(c), listKey)
+				}
+			}
+		} else if p.categorical(t.Source) != nil && !t.Transform.Empty() {
+			d.errAt(t.Key, "column %s is declared categorical (%s) and cannot be transformed", quote(t.Source), p.categorical(t.Source).Key)
+		}
+		names[t.Name] = true
+	}
+}
+
+// badNameChars names the characters of s that a column name cannot hold.
+func badNameChars(s string) string {
+	var bad []string
+	for _, r := range s {
+		if strings.ContainsRune(" \t[]=+-*,:;()", r) {
+			q := quote(string(r))
+			if !slices.Contains(bad, q) {
+				bad = append(bad, q)
+			}
+		}
+	}
+	return strings.Join(bad, ", ")
+}
+
+func (p *Plan) categorical(col string) *CategoricalColumn {
+	for i := range p.Categorical {
+		if p.Categorical[i].Column == col {
+			return &p.Categorical[i]
+		}
+	}
+	return nil
+}
+
+// Categorical returns the declaration of a categorical column, or nil.
+func (p *Plan) CategoricalOf(col string) *CategoricalColumn { return p.categorical(col) }
+
+// DesignSpec is the design of an outcome's predictors: the raw columns
+// its terms read (in order of first use) and the terms.
+func (p *Plan) DesignSpec(o Outcome) design.Spec {
+	terms := p.Terms
+	if o.Terms != nil {
+		terms = o.Terms
+	}
+	var s design.Spec
+	have := map[string]bool{}
+	for _, t := range terms {
+		s.Terms = append(s.Terms, t)
+		if t.Source == "" || have[t.Source] {
+			continue
+		}
+		have[t.Source] = true
+		src := design.Source{Name: t.Source}
+		if c := p.categorical(t.Source); c != nil {
+			cat := c.Categorical
+			src.Cat = &cat
+		}
+		s.Sources = append(s.Sources, src)
+	}
+	return s
+}
+
+// PredictorsOf gives the term names of an outcome (its own list, or the
+// plan's).
+func (p *Plan) PredictorsOf(o Outcome) []string {
+	if o.Predictors != nil {
+		return o.Predictors
+	}
+	return p.Predictors
+}
+
+// SourceColumns lists the raw columns the plan's terms read, in order of
+// first use (over the plan's list and the outcomes' own lists).
+func (p *Plan) SourceColumns() []string {
+	var out []string
+	add := func(terms []design.TermSpec) {
+		for _, t := range terms {
+			if t.Source != "" && !slices.Contains(out, t.Source) {
+				out = append(out, t.Source)
+			}
+		}
+	}
+	add(p.Terms)
+	for _, o := range p.Outcomes {
+		add(o.Terms)
+	}
+	return out
+}
+
+// hasTerm reports whether name is a term of the plan's list or of an
+// outcome's own list.
+func (p *Plan) hasTerm(name string) bool {
+	if slices.Contains(p.Predictors, name) {
+		return true
+	}
+	for _, o := range p.Outcomes {
+		if slices.Contains(o.Predictors, name) {
+			return true
+		}
+	}
+	return false
+}
+
+// Subset conditions: the key names the comparison.
+var subsetOps = []struct{ key, op string }{
+	{"less_than", "<"}, {"at_most", "<="}, {"greater_than", ">"}, {"at_least", ">="},
+	{"equal_to", "=="}, {"not_equal_to", "!="}, {"one_of", "in"}, {"none_of", "not_in"},
+}
+
+// decodeSubset reads the subset section: a list of conditions, each
+// {column: c, <comparison>: value} (a number, or a list of values for
+// one_of / none_of). A row is used when it meets every condition.
+func (d *decoder) decodeSubset(n *yaml.Node) []data.Condition {
+	items, ok := d.list(n, "subset")
+	if !ok {
+		return nil
+	}
+	keys := []string{"column"}
+	for _, o := range subsetOps {
+		keys = append(keys, o.key)
+	}
+	var out []data.Condition
+	for i, it := range items {
+		p := itemPath("subset", i)
+		m := d.mapping(it, p, keys)
+		if m == nil {
+			continue
+		}
+		c := data.Condition{Key: p}
+		if v := m.required("column"); v != nil {
+			c.Column, _ = d.name(v, m.at("column"))
+		}
+		given := 0
+		for _, o := range subsetOps {
+			v := m.get(o.key)
+			if v == nil {
+				continue
+			}
+			given++
+			c.Op = o.op
+			if o.op == "in" || o.op == "not_in" {
+				c.Values, _ = d.readList(v, m.at(o.key), d.token)
+			} else {
+				c.Number, _ = d.number(v, m.at(o.key))
+			}
+		}
+		if given != 1 {
+			names := make([]string, len(subsetOps))
+			for j, o := range subsetOps {
+				names[j] = o.key
+			}
+			d.errorf(deref(it), p, "a condition needs the column and exactly one comparison (%s), got %d", orList(names), given)
+			continue
+		}
+		out = append(out, c)
+	}
+	return out
+}

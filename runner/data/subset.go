@@ -1,0 +1,67 @@
+package data
+
+import (
+	"fmt"
+	"slices"
+	"strconv"
+	"strings"
+)
+
+// Condition keeps the rows whose cell in Column compares with a number
+// (Op one of <, <=, >, >=, ==, !=) or is (Op "in") or is not (Op
+// "not_in") one of the texts in Values. A missing cell fails the
+// condition.
+type Condition struct {
+	Column string
+	Op     string
+	Number float64
+	Values []string
+	Key    string // where the plan states it, for reports
+}
+
+// String renders the condition for reports, e.g. `age >= 18` or
+// `site in {north, east}`.
+func (c Condition) String() string {
+	switch c.Op {
+	case "in", "not_in":
+		op := "in"
+		if c.Op == "not_in" {
+			op = "not in"
+		}
+		return fmt.Sprintf("%s %s {%s}", c.Column, op, strings.Join(c.Values, ", "))
+	}
+	return fmt.Sprintf("%s %s %s", c.Column, c.Op, strconv.FormatFloat(c.Number, 'g', -1, 64))
+}
+
+// keeps reports whether the trimmed cell meets the condition; a message
+// is returned when a comparison meets a cell that is not a number.
+func (c Condition) keeps(cell string, missing bool) (bool, string) {
+	if missing {
+		return false, ""
+	}
+	switch c.Op {
+	case "in":
+		return slices.Contains(c.Values, cell), ""
+	case "not_in":
+		return !slices.Contains(c.Values, cell), ""
+	}
+	v, msg := parseNumber(cell)
+	if msg != "" {
+		return false, msg + " (the subset condition " + c.String() + " compares numbers)"
+	}
+	switch c.Op {
+	case "<":
+		return v < c.Number, ""
+	case "<=":
+		return v <= c.Number, ""
+	case ">":
+		return v > c.Number, ""
+	case ">=":
+		return v >= c.Number, ""
+	case "==":
+		return v == c.Number, ""
+	case "!=":
+		return v != c.Number, ""
+	}
+	return false, "unknown comparison " + strconv.Quote(c.Op)
+}

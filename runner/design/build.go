@@ -1,0 +1,366 @@
+package design
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"strconv"
+	"strings"
+)
+
+// Term kinds.
+const (
+	KindNumeric     = "numeric"
+	KindCategorical = "categorical"
+	KindInteraction = "interaction"
+)
+
+// Term is one built term with its frozen constants.
+type Term struct {
+	Name    string
+	Kind    string
+	Key     string   // plan key
+	Source  int      // index into Design.Sources (numeric, categorical)
+	Parts   []int    // interaction: indices of the component terms
+	Columns []string // design column names
+	First   int      // index of the first column in the design
+
+	Transform Transform
+	// Frozen constants of a numeric term (NaN when not used).
+	Mean  float64 // of the value after log/sqrt, when Centre == "mean"
+	SD    float64 // after centring, when Scale
+	Knots []float64
+	// Orthogonal polynomial recurrence: p_{k+1} = (u - Alpha_k) p_k - Beta_k p_{k-1},
+	// columns p_k / sqrt(Norm2_k), k = 1..degree.
+	Alpha []float64
+	Norm2 []float64
+	// Categorical: the coded levels (declared order, unobserved dropped)
+	// and the coding matrix: level index -> column values.
+	Kept    []string
+	Dropped []string
+	code    map[int][]float64
+}
+
+// Design is a built design.
+type Design struct {
+	Sources []Source
+	Terms   []Term
+	Columns []string
+	// Notes say what Build decided that the user should know (levels
+	// dropped because no row has them).
+	Notes []string
+	// Scale of each numeric source (sample SD, or 1), for numerical steps.
+	SourceScale []float64
+}
+
+// Error is a problem building a design: a term that cannot be built on
+// the data (with the data line of the offending row when there is one).
+type Error struct {
+	Key    string // plan key of the term
+	Line   int    // data line, 0 when none
+	Column string // raw column
+	Msg    string
+}
+
+func (e *Error) Error() string {
+	var b strings.Builder
+	if e.Key != "" {
+		b.WriteString(e.Key + ": ")
+	}
+	if e.Line > 0 {
+		fmt.Fprintf(&b, "data line %d: ", e.Line)
+	}
+	if e.Column != "" {
+		fmt.Fprintf(&b, "column %q: ", e.Column)
+	}
+	b.WriteString(e.Msg)
+	return b.String()
+}
+
+// Build builds the design from the raw columns: raw is N x S row-major in
+// the order of spec.Sources, w the row weights (nil: all 1; frequency or
+// sampling weights make the sample constants weighted), lines the data
+// line of each row (nil: none).
+func Build(spec Spec, raw []float64, n int, w []float64, lines []int) (*Design, error) {
+	S := len(spec.Sources)
+	d := &Design{Sources: spec.Sources, SourceScale: make([]float64, S)}
+	col := func(s int) []float64 {
+		out := make([]float64, n)
+		for i := range out {
+			out[i] = raw[i*S+s]
+		}
+		return out
+	}
+	for s, src := range spec.Sources {
+		d.SourceScale[s] = 1
+		if src.Cat == nil && n > 1 {
+			if _, sd := meanSD(col(s), w); sd > 0 {
+				d.SourceScale[s] = sd
+			}
+		}
+	}
+	index := map[string]int{}
+	for _, ts := range spec.Terms {
+		if _, dup := index[ts.Name]; dup {
+			return nil, &Error{Key: ts.Key, Msg: fmt.Sprintf("term %q is given twice", ts.Name)}
+		}
+		t := Term{Name: ts.Name, Key: ts.Key, Transform: ts.Transform, First: len(d.Columns), Mean: math.NaN(), SD: math.NaN()}
+		var err error
+		if len(ts.Interact) > 0 {
+			err = d.buildInteraction(&t, ts, index)
+		} else {
+			s := slices.IndexFunc(spec.Sources, func(x Source) bool { return x.Name == ts.Source })
+			if s < 0 {
+				return nil, &Error{Key: ts.Key, Msg: fmt.Sprintf("column %q is not among the columns read", ts.Source)}
+			}
+			t.Source = s
+			v := col(s)
+			if spec.Sources[s].Cat != nil {
+				err = d.buildCategorical(&t, spec.Sources[s], v, w)
+			} else {
+				err = d.buildNumeric(&t, spec.Sources[s].Name, v, w, lines)
+			}
+		}
+		if err != nil {
+			return nil, err
+		}
+		for _, c := range t.Columns {
+			if slices.Contains(d.Columns, c) {
+				return nil, &Error{Key: ts.Key, Msg: fmt.Sprintf("design column %q would be made twice; give the term another name", c)}
+			}
+			d.Columns = append(d.Columns, c)
+		}
+		index[t.Name] = len(d.Terms)
+		d.Terms = append(d.Terms, t)
+	}
+	return d, nil
+}
+
+// meanSD is the weighted mean and standard deviation (divisor: sum of
+// weights minus 1, the sample SD of the rows the weights stand for).
+func meanSD(v, w []float64) (float64, float64) {
+	tot, s := 0.0, 0.0
+	for i, x := range v {
+		wi := weight(w, i)
+		tot += wi
+		s += wi * x
+	}
+	m := s / tot
+	ss := 0.0
+	for i, x := range v {
+		ss += weight(w, i) * (x - m) * (x - m)
+	}
+	if tot <= 1 {
+		return m, 0
+	}
+	return m, math.Sqrt(ss / (tot - 1))
+}
+
+func weight(w []float64, i int) float64 {
+	if w == nil {
+		return 1
+	}
+	return w[i]
+}
+
+// LevelName makes a level usable in a column name: characters other than
+// letters, digits, '_' and '.' become '_'.
+func LevelName(level string) string {
+	var b strings.Builder
+	for _, r := range level {
+		if r < 128 && (r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z' || r >= '0' && r <= '9' || r == '_' || r == '.') {
+			b.WriteRune(r)
+		} else {
+			b.WriteByte('_')
+		}
+	}
+	return b.String()
+}
+
+func (d *Design) buildCategorical(t *Term, src Source, v, w []float64) error {
+	c := src.Cat
+	t.Kind = KindCategorical
+	L := len(c.Levels)
+	count := make([]float64, L)
+	for i, x := range v {
+		count[int(x)] += weight(w, i)
+	}
+	ref := c.Reference
+	if ref == "" {
+		ref = c.Levels[0]
+	}
+	var keptIdx []int
+	for l, name := range c.Levels {
+		if count[l] > 0 {
+			keptIdx = append(keptIdx, l)
+			continue
+		}
+		switch {
+		case name == ref:
+			return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("the reference level %q occurs in no row used; choose another reference", name)}
+		case c.Unobserved == UnobservedDrop:
+			t.Dropped = append(t.Dropped, name)
+			d.Notes = append(d.Notes, fmt.Sprintf("Level %q of %s occurs in no row used; its column was dropped (%s: unobserved: drop).", name, src.Name, t.Key))
+		default:
+			return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("level %q is declared but occurs in no row used; remove it from the levels, or set unobserved: drop to drop its column", name)}
+		}
+	}
+	if len(keptIdx) < 2 {
+		return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("only one level (%q) occurs in the rows used; a categorical predictor needs two", c.Levels[keptIdx[0]])}
+	}
+	for _, l := range keptIdx {
+		t.Kept = append(t.Kept, c.Levels[l])
+	}
+	r := slices.Index(t.Kept, ref)
+	K := len(t.Kept)
+	t.code = map[int][]float64{}
+	var names []string
+	switch c.Coding {
+	case Successive:
+		for k := 1; k < K; k++ {
+			names = append(names, t.Name+"."+LevelName(t.Kept[k]))
+		}
+		for j, l := range keptIdx {
+			row := make([]float64, K-1)
+			for k := 1; k < K; k++ {
+				if j >= k {
+					row[k-1] = 1
+				}
+			}
+			t.code[l] = row
+		}
+	default: // treatment and sum: one column per kept level other than the reference
+		for j, name := range t.Kept {
+			if j != r {
+				names = append(names, t.Name+"."+LevelName(name))
+			}
+		}
+		for j, l := range keptIdx {
+			row := make([]float64, K-1)
+			switch {
+			case j == r && c.Coding == Sum:
+				for k := range row {
+					row[k] = -1
+				}
+			case j != r:
+				k := j
+				if j > r {
+					k--
+				}
+				row[k] = 1
+			}
+			t.code[l] = row
+		}
+	}
+	t.Columns = names
+	return nil
+}
+
+func (d *Design) buildInteraction(t *Term, ts TermSpec, index map[string]int) error {
+	t.Kind = KindInteraction
+	if len(ts.Interact) < 2 {
+		return &Error{Key: ts.Key, Msg: "an interaction needs at least two terms"}
+	}
+	cols := []string{""}
+	for _, name := range ts.Interact {
+		k, ok := index[name]
+		if !ok {
+			return &Error{Key: ts.Key, Msg: fmt.Sprintf("%q is not a term listed before this interaction", name)}
+		}
+		if slices.Contains(t.Parts, k) {
+			return &Error{Key: ts.Key, Msg: fmt.Sprintf("term %q appears twice in the interaction", name)}
+		}
+		t.Parts = append(t.Parts, k)
+		var next []string
+		for _, a := range cols {
+			for _, b := range d.Terms[k].Columns {
+				if a == "" {
+					next = append(next, b)
+				} else {
+					next = append(next, a+"&"+b)
+				}
+			}
+		}
+		cols = next
+	}
+	// The same raw column in two components (say age and age squared) is
+	// allowed; two categorical components on one column are not.
+	seen := map[int]bool{}
+	for _, k := range t.Parts {
+		for _, s := range d.termSources(k) {
+			if d.Sources[s].Cat != nil && seen[s] {
+				return &Error{Key: ts.Key, Msg: fmt.Sprintf("the categorical column %q enters the interaction twice", d.Sources[s].Name)}
+			}
+			seen[s] = true
+		}
+	}
+	t.Columns = cols
+	return nil
+}
+
+// termSources lists the raw columns term k reads.
+func (d *Design) termSources(k int) []int {
+	t := &d.Terms[k]
+	if t.Kind != KindInteraction {
+		return []int{t.Source}
+	}
+	var out []int
+	for _, p := range t.Parts {
+		for _, s := range d.termSources(p) {
+			if !slices.Contains(out, s) {
+				out = append(out, s)
+			}
+		}
+	}
+	return out
+}
+
+// Sources of term k, by name.
+func (d *Design) TermSources(k int) []string {
+	var out []string
+	for _, s := range d.termSources(k) {
+		out = append(out, d.Sources[s].Name)
+	}
+	return out
+}
+
+// Term returns the index of the named term, or -1.
+func (d *Design) Term(name string) int {
+	return slices.IndexFunc(d.Terms, func(t Term) bool { return t.Name == name })
+}
+
+// TermColumns returns the design columns of the named terms, in design
+// order; ok is false when a name is not a term.
+func (d *Design) TermColumns(names []string) ([]string, bool) {
+	var out []string
+	for _, n := range names {
+		k := d.Term(n)
+		if k < 0 {
+			return nil, false
+		}
+		out = append(out, d.Terms[k].Columns...)
+	}
+	return out, true
+}
+
+// Trivial reports whether the design is the raw numeric columns as they
+// are (one column per term, named after it).
+func (d *Design) Trivial() bool {
+	for _, t := range d.Terms {
+		if t.Kind != KindNumeric || !t.Transform.Empty() {
+			return false
+		}
+	}
+	return true
+}
+
+func fmtNum(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+
+// PartNames lists the names of an interaction's components.
+func (t *Term) PartNames(d *Design) []string {
+	out := make([]string, len(t.Parts))
+	for i, p := range t.Parts {
+		out[i] = d.Terms[p].Name
+	}
+	return out
+}

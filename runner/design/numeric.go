@@ -1,0 +1,302 @@
+package design
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"sort"
+	"strings"
+)
+
+// buildNumeric freezes the constants of a numeric term from the sample.
+func (d *Design) buildNumeric(t *Term, column string, v, w []float64, lines []int) error {
+	t.Kind = KindNumeric
+	tr := t.Transform
+	u := make([]float64, len(v))
+	for i, x := range v {
+		y, msg := pre(tr, x)
+		if msg != "" {
+			line := 0
+			if lines != nil {
+				line = lines[i]
+			}
+			return &Error{Key: t.Key, Line: line, Column: column, Msg: msg}
+		}
+		u[i] = y
+	}
+	switch tr.Centre {
+	case "mean":
+		t.Mean, _ = meanSD(u, w)
+		for i := range u {
+			u[i] -= t.Mean
+		}
+	case "value":
+		for i := range u {
+			u[i] -= tr.CentreAt
+		}
+	}
+	if tr.Scale {
+		_, t.SD = meanSD(u, w) // the spread around the sample mean
+		if !(t.SD > 0) {
+			return &Error{Key: t.Key, Column: column, Msg: "cannot scale by the standard deviation: the column takes one value in the rows used"}
+		}
+		for i := range u {
+			u[i] /= t.SD
+		}
+	}
+	switch {
+	case tr.Poly > 0:
+		if distinct(u) <= tr.Poly {
+			return &Error{Key: t.Key, Column: column, Msg: fmt.Sprintf("a polynomial of degree %d needs more than %d distinct values; the rows used have %d", tr.Poly, tr.Poly, distinct(u))}
+		}
+		if !tr.PolyRaw {
+			t.Alpha, t.Norm2 = orthoPoly(u, w, tr.Poly)
+		}
+		for k := 1; k <= tr.Poly; k++ {
+			t.Columns = append(t.Columns, fmt.Sprintf("%s.%d", t.Name, k))
+		}
+	case tr.Spline():
+		t.Knots = slices.Clone(tr.Knots)
+		if tr.Quantiles != nil {
+			t.Knots = make([]float64, len(tr.Quantiles))
+			for j, p := range tr.Quantiles {
+				t.Knots[j] = quantile(u, w, p)
+			}
+		}
+		for j := 1; j < len(t.Knots); j++ {
+			if !(t.Knots[j] > t.Knots[j-1]) {
+				return &Error{Key: t.Key, Column: column, Msg: fmt.Sprintf("the spline knots %s are not strictly increasing on the transformed values (too few distinct values for the quantiles asked)", numList(t.Knots))}
+			}
+		}
+		for k := 1; k < len(t.Knots); k++ {
+			t.Columns = append(t.Columns, fmt.Sprintf("%s.%d", t.Name, k))
+		}
+	default:
+		t.Columns = []string{t.Name}
+	}
+	return nil
+}
+
+func distinct(u []float64) int {
+	s := slices.Clone(u)
+	slices.Sort(s)
+	return len(slices.Compact(s))
+}
+
+// pre applies log or sqrt to one raw value.
+func pre(tr Transform, x float64) (float64, string) {
+	switch {
+	case tr.Log:
+		y := x + tr.Shift
+		if !(y > 0) {
+			if tr.Shift != 0 {
+				return 0, fmt.Sprintf("log(%s + %s) is undefined: the value plus the shift is not positive", fmtNum(x), fmtNum(tr.Shift))
+			}
+			return 0, fmt.Sprintf("log(%s) is undefined: the value is not positive (state a shift for zeros: log: {shift: 1})", fmtNum(x))
+		}
+		return math.Log(y), ""
+	case tr.Sqrt:
+		if x < 0 {
+			return 0, fmt.Sprintf("sqrt(%s) is undefined: the value is negative", fmtNum(x))
+		}
+		return math.Sqrt(x), ""
+	}
+	return x, ""
+}
+
+// dpre is the derivative of pre at x.
+func dpre(tr Transform, x float64) float64 {
+	switch {
+	case tr.Log:
+		return 1 / (x + tr.Shift)
+	case tr.Sqrt:
+		if x == 0 {
+			return math.Inf(1)
+		}
+		return 0.5 / math.Sqrt(x)
+	}
+	return 1
+}
+
+// numericColumns gives the columns of a numeric term at raw value x, and
+// their derivatives in x when der is not nil.
+func (t *Term) numericColumns(x float64, out, der []float64) error {
+	tr := t.Transform
+	u, msg := pre(tr, x)
+	if msg != "" {
+		return fmt.Errorf("%s", msg)
+	}
+	du := dpre(tr, x)
+	switch tr.Centre {
+	case "mean":
+		u -= t.Mean
+	case "value":
+		u -= tr.CentreAt
+	}
+	if tr.Scale {
+		u /= t.SD
+		du /= t.SD
+	}
+	switch {
+	case tr.Poly > 0:
+		if tr.PolyRaw {
+			p := 1.0
+			for k := 1; k <= tr.Poly; k++ {
+				if der != nil {
+					der[k-1] = float64(k) * p * du
+				}
+				p *= u
+				out[k-1] = p
+			}
+			return nil
+		}
+		orthoEval(u, t.Alpha, t.Norm2, out, der)
+		if der != nil {
+			for k := range der {
+				der[k] *= du
+			}
+		}
+	case t.Knots != nil:
+		splineEval(u, t.Knots, out, der)
+		if der != nil {
+			for k := range der {
+				der[k] *= du
+			}
+		}
+	default:
+		out[0] = u
+		if der != nil {
+			der[0] = du
+		}
+	}
+	return nil
+}
+
+// orthoPoly computes the three-term recurrence of polynomials orthogonal
+// in the weighted sample u: p_0 = 1, p_1 = u - a_0,
+// p_{k+1} = (u - a_k) p_k - (n_k / n_{k-1}) p_{k-1}, with n_k the weighted
+// sum of p_k^2. It returns a_0..a_{deg-1} and n_0..n_deg.
+func orthoPoly(u, w []float64, deg int) ([]float64, []float64) {
+	N := len(u)
+	alpha := make([]float64, deg)
+	norm2 := make([]float64, deg+1)
+	prev := make([]float64, N)
+	cur := make([]float64, N)
+	for i := range cur {
+		cur[i] = 1
+	}
+	for k := 0; k <= deg; k++ {
+		s, su := 0.0, 0.0
+		for i, x := range u {
+			wi := weight(w, i)
+			s += wi * cur[i] * cur[i]
+			su += wi * x * cur[i] * cur[i]
+		}
+		norm2[k] = s
+		if k == deg {
+			break
+		}
+		alpha[k] = su / s
+		beta := 0.0
+		if k > 0 {
+			beta = norm2[k] / norm2[k-1]
+		}
+		next := make([]float64, N)
+		for i, x := range u {
+			next[i] = (x-alpha[k])*cur[i] - beta*prev[i]
+		}
+		prev, cur = cur, next
+	}
+	return alpha, norm2
+}
+
+// orthoEval evaluates the normalized orthogonal polynomials 1..deg at u
+// (each p_k / sqrt(n_k)) and their derivatives in u.
+func orthoEval(u float64, alpha, norm2 []float64, out, der []float64) {
+	deg := len(alpha)
+	pPrev, p := 0.0, 1.0
+	dPrev, dp := 0.0, 0.0
+	for k := 0; k < deg; k++ {
+		beta := 0.0
+		if k > 0 {
+			beta = norm2[k] / norm2[k-1]
+		}
+		pNext := (u-alpha[k])*p - beta*pPrev
+		dNext := p + (u-alpha[k])*dp - beta*dPrev
+		pPrev, p = p, pNext
+		dPrev, dp = dp, dNext
+		s := math.Sqrt(norm2[k+1])
+		out[k] = p / s
+		if der != nil {
+			der[k] = dp / s
+		}
+	}
+}
+
+// splineEval evaluates the natural cubic spline basis with knots
+// xi_1 < ... < xi_K at u: the column u, then for k = 1..K-2 the columns
+// (d_k(u) - d_{K-1}(u)) / (xi_K - xi_1)^2 with
+// d_k(u) = ((u - xi_k)_+^3 - (u - xi_K)_+^3) / (xi_K - xi_k).
+// Each column is a cubic between knots, linear beyond the boundary knots,
+// with continuous second derivative. der gets the derivatives in u.
+func splineEval(u float64, knots []float64, out, der []float64) {
+	K := len(knots)
+	xk := knots[K-1]
+	span2 := (knots[K-1] - knots[0]) * (knots[K-1] - knots[0])
+	pos := func(x float64) float64 { return math.Max(x, 0) }
+	dk := func(k int) (float64, float64) {
+		a, b := pos(u-knots[k]), pos(u-xk)
+		den := xk - knots[k]
+		return (a*a*a - b*b*b) / den, 3 * (a*a - b*b) / den
+	}
+	out[0] = u
+	if der != nil {
+		der[0] = 1
+	}
+	last, dlast := dk(K - 2)
+	for k := 0; k < K-2; k++ {
+		v, dv := dk(k)
+		out[k+1] = (v - last) / span2
+		if der != nil {
+			der[k+1] = (dv - dlast) / span2
+		}
+	}
+}
+
+// quantile is the weighted sample quantile at probability p: with integer
+// weights, the quantile of the sample in which each row is repeated
+// weight times, interpolating between order statistics at position
+// p (n - 1) (n the total weight).
+func quantile(u, w []float64, p float64) float64 {
+	idx := make([]int, len(u))
+	for i := range idx {
+		idx[i] = i
+	}
+	sort.SliceStable(idx, func(a, b int) bool { return u[idx[a]] < u[idx[b]] })
+	tot := 0.0
+	for i := range u {
+		tot += weight(w, i)
+	}
+	h := p * (tot - 1)
+	lo := math.Floor(h)
+	at := func(pos float64) float64 { // value of order statistic number pos (0-based)
+		c := 0.0
+		for _, i := range idx {
+			c += weight(w, i)
+			if pos < c {
+				return u[i]
+			}
+		}
+		return u[idx[len(idx)-1]]
+	}
+	a, b := at(lo), at(lo+1)
+	return a + (h-lo)*(b-a)
+}
+
+func numList(xs []float64) string {
+	s := make([]string, len(xs))
+	for i, x := range xs {
+		s[i] = fmtNum(x)
+	}
+	return "[" + strings.Join(s, ", ") + "]"
+}

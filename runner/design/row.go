@@ -1,0 +1,148 @@
+package design
+
+import (
+	"fmt"
+	"math"
+)
+
+// Row fills out (len(Columns)) with the design row of one raw row (len
+// Sources: numbers, or level indices for categorical columns).
+func (d *Design) Row(raw, out []float64) error {
+	return d.row(raw, out, -1, nil)
+}
+
+// Derivative fills der with the derivative of the design row in the raw
+// numeric column s, at raw row raw; out gets the design row itself.
+func (d *Design) Derivative(raw []float64, s int, out, der []float64) error {
+	if d.Sources[s].Cat != nil {
+		return fmt.Errorf("column %q is categorical", d.Sources[s].Name)
+	}
+	return d.row(raw, out, s, der)
+}
+
+// row evaluates every term in order; when s >= 0 it also carries the
+// derivative in raw column s (product rule through interactions).
+func (d *Design) row(raw, out []float64, s int, der []float64) error {
+	for k := range d.Terms {
+		t := &d.Terms[k]
+		o := out[t.First : t.First+len(t.Columns)]
+		var dd []float64
+		if der != nil {
+			dd = der[t.First : t.First+len(t.Columns)]
+		}
+		switch t.Kind {
+		case KindCategorical:
+			x := raw[t.Source]
+			code, ok := t.code[int(x)]
+			if !ok || x != math.Trunc(x) {
+				return fmt.Errorf("column %q: level %v is not one of the coded levels", d.Sources[t.Source].Name, levelText(d.Sources[t.Source], x))
+			}
+			copy(o, code)
+			for i := range dd {
+				dd[i] = 0
+			}
+		case KindNumeric:
+			var td []float64
+			if dd != nil {
+				if t.Source == s {
+					td = dd
+				} else {
+					for i := range dd {
+						dd[i] = 0
+					}
+				}
+			}
+			if err := t.numericColumns(raw[t.Source], o, td); err != nil {
+				return fmt.Errorf("column %q: %v", d.Sources[t.Source].Name, err)
+			}
+		case KindInteraction:
+			d.product(t, out, der, o, dd)
+		}
+	}
+	return nil
+}
+
+// product fills the interaction's columns (and derivatives) from its
+// components' columns, already computed in out (and der).
+func (d *Design) product(t *Term, out, der, o, dd []float64) {
+	vals := []float64{1}
+	ders := []float64{0}
+	for _, p := range t.Parts {
+		c := &d.Terms[p]
+		var nv, nd []float64
+		for a := range vals {
+			for j := range c.Columns {
+				v := out[c.First+j]
+				nv = append(nv, vals[a]*v)
+				if der != nil {
+					nd = append(nd, ders[a]*v+vals[a]*der[c.First+j])
+				}
+			}
+		}
+		vals, ders = nv, nd
+	}
+	copy(o, vals)
+	if dd != nil {
+		copy(dd, ders)
+	}
+}
+
+func levelText(src Source, x float64) string {
+	i := int(x)
+	if src.Cat != nil && i >= 0 && i < len(src.Cat.Levels) && float64(i) == x {
+		return fmt.Sprintf("%q", src.Cat.Levels[i])
+	}
+	return fmt.Sprint(x)
+}
+
+// Matrix builds the design matrix (n x len(Columns)) of n raw rows; the
+// error names the row (0-based) and the problem.
+func (d *Design) Matrix(raw []float64, n int) ([]float64, int, error) {
+	S, K := len(d.Sources), len(d.Columns)
+	X := make([]float64, n*K)
+	for i := 0; i < n; i++ {
+		if err := d.Row(raw[i*S:(i+1)*S], X[i*K:(i+1)*K]); err != nil {
+			return nil, i, err
+		}
+	}
+	return X, -1, nil
+}
+
+// Level returns the index of a level of categorical column s, or -1.
+func (d *Design) Level(s int, level string) int {
+	c := d.Sources[s].Cat
+	if c == nil {
+		return -1
+	}
+	for i, l := range c.Levels {
+		if l == level {
+			return i
+		}
+	}
+	return -1
+}
+
+// Coded returns the levels of categorical column s that the design codes
+// (declared order, unobserved levels dropped), and the reference level.
+func (d *Design) Coded(s int) ([]string, string) {
+	for _, t := range d.Terms {
+		if t.Kind == KindCategorical && t.Source == s {
+			ref := d.Sources[s].Cat.Reference
+			if ref == "" {
+				ref = d.Sources[s].Cat.Levels[0]
+			}
+			return t.Kept, ref
+		}
+	}
+	return nil, ""
+}
+
+// Source returns the index of the raw column name, or -1.
+func (d *Design) Source(name string) int {
+	for i, s := range d.Sources {
+		if s.Name == name {
+			return i
+		}
+	}
+	return -1
+}

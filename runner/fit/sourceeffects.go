@@ -1,0 +1,156 @@
+package fit
+
+import (
+	"fmt"
+	"math"
+
+	"gonum.org/v1/gonum/stat/distuv"
+)
+
+// AverageDifference is the weighted average over rows of
+// P(y=j | X1_i) - P(y=j | X0_i): the discrete change of a source variable
+// (for example a categorical predictor from its reference to a level)
+// with everything else in the row as it is. X0 and X1 are design rows
+// (n x K); offset and w may be nil. Standard errors by the delta method
+// with the analytic Jacobian of the probabilities.
+func (r *Result) AverageDifference(name string, X0, X1, offset, w []float64, level float64) ([]MarginalEffect, error) {
+	pr, err := r.problem()
+	if err != nil {
+		return nil, err
+	}
+	K, J, P := len(r.Predictors), r.J, len(r.Estimates)
+	if len(X0) != len(X1) || K > 0 && len(X0)%K != 0 {
+		return nil, fmt.Errorf("design rows of different sizes")
+	}
+	n := 1
+	if K > 0 {
+		n = len(X0) / K
+	}
+	eff := make([]float64, J)
+	jac := make([]float64, J*P)
+	p0, p1 := make([]float64, J), make([]float64, J)
+	tot := 0.0
+	for i := 0; i < n; i++ {
+		wi := 1.0
+		if w != nil {
+			wi = w[i]
+		}
+		if wi == 0 {
+			continue
+		}
+		tot += wi
+		off := 0.0
+		if offset != nil {
+			off = offset[i]
+		}
+		x0, x1 := X0[i*K:(i+1)*K], X1[i*K:(i+1)*K]
+		pr.probsAt(r.Estimates, x1, off, p1)
+		g1 := pr.rowJacobian(r.Estimates, x1, off)
+		pr.probsAt(r.Estimates, x0, off, p0)
+		g0 := pr.rowJacobian(r.Estimates, x0, off)
+		for j := 0; j < J; j++ {
+			eff[j] += wi * (p1[j] - p0[j])
+			for a := 0; a < P; a++ {
+				jac[j*P+a] += wi * (g1[j*P+a] - g0[j*P+a])
+			}
+		}
+	}
+	for j := range eff {
+		eff[j] /= tot
+	}
+	for a := range jac {
+		jac[a] /= tot
+	}
+	return r.effectRows(name, true, eff, jac, level), nil
+}
+
+// AverageSlope is the weighted average over rows of
+// sum_k dP(y=j)/dx_k (X_i) * dX_ik: the derivative of the category
+// probabilities in a numeric source variable whose design columns move by
+// dX (n x K: the derivative of each design column in the variable, through
+// transformations, splines and interactions). Standard errors by the delta
+// method, the Jacobian in the parameters by central differences.
+func (r *Result) AverageSlope(name string, X, dX, offset, w []float64, level float64) ([]MarginalEffect, error) {
+	pr, err := r.problem()
+	if err != nil {
+		return nil, err
+	}
+	K, J := len(r.Predictors), r.J
+	if len(X) != len(dX) || K > 0 && len(X)%K != 0 {
+		return nil, fmt.Errorf("design rows of different sizes")
+	}
+	n := 1
+	if K > 0 {
+		n = len(X) / K
+	}
+	slope := func(theta []float64) []float64 {
+		eff := make([]float64, J)
+		B := pr.ly.effects(theta, r.Model.Effects)
+		D := make([]float64, J*(J-1))
+		dL := make([]float64, J-1)
+		tot := 0.0
+		for i := 0; i < n; i++ {
+			wi := 1.0
+			if w != nil {
+				wi = w[i]
+			}
+			if wi == 0 {
+				continue
+			}
+			tot += wi
+			off := 0.0
+			if offset != nil {
+				off = offset[i]
+			}
+			x, dx := X[i*K:(i+1)*K], dX[i*K:(i+1)*K]
+			L := pr.rowLinear(theta, x, off)
+			pr.ker.dprobsDL(L, D)
+			// dL_m = -sum_k b_mk dx_k
+			for m := 0; m < J-1; m++ {
+				s := 0.0
+				for k := 0; k < K; k++ {
+					if dx[k] != 0 {
+						s += B[m*K+k] * dx[k]
+					}
+				}
+				dL[m] = -s
+			}
+			for j := 0; j < J; j++ {
+				for m := 0; m < J-1; m++ {
+					eff[j] += wi * D[j*(J-1)+m] * dL[m]
+				}
+			}
+		}
+		for j := range eff {
+			eff[j] /= tot
+		}
+		return eff
+	}
+	eff := slope(r.Estimates)
+	jac := centralJacobian(slope, r.Estimates)
+	return r.effectRows(name, false, eff, jac, level), nil
+}
+
+// effectRows turns per-category effects and their Jacobian into rows with
+// standard errors, z, p and intervals.
+func (r *Result) effectRows(name string, discrete bool, eff, jac []float64, level float64) []MarginalEffect {
+	if level <= 0 || level >= 1 {
+		level = 0.95
+	}
+	z := distuv.UnitNormal.Quantile(0.5 + level/2)
+	P := len(r.Estimates)
+	out := make([]MarginalEffect, len(eff))
+	for j := range eff {
+		se := math.Sqrt(quadForm(jac[j*P:(j+1)*P], r.Cov))
+		me := MarginalEffect{Predictor: name, Category: r.Levels[j], Discrete: discrete, Effect: eff[j], SE: se}
+		if se > 0 {
+			me.Z = eff[j] / se
+			me.P = 2 * distuv.UnitNormal.Survival(math.Abs(me.Z))
+		} else {
+			me.P = 1
+		}
+		me.Low, me.High = eff[j]-z*se, eff[j]+z*se
+		out[j] = me
+	}
+	return out
+}

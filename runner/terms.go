@@ -1,0 +1,201 @@
+package runner
+
+import (
+	"errors"
+	"fmt"
+	"slices"
+	"strings"
+
+	"ordplan/plan"
+	"ordplan/runner/data"
+	"ordplan/runner/design"
+	"ordplan/runner/fit"
+)
+
+// dataOptions says how to read the data of one outcome: its outcome
+// column, the raw columns its terms read (categorical ones as levels), the
+// subset, weights, offset and cluster.
+func dataOptions(p *plan.Plan, oc plan.Outcome, spec design.Spec) data.Options {
+	dopt := data.Options{
+		Outcome: oc.Column, Levels: oc.Categories,
+		Weights: p.Data.Weights, Offset: p.Data.Offset, Cluster: p.Data.Cluster,
+		Refuse: p.Data.Missing == "refuse", MissingTokens: p.Data.MissingValues,
+		Keep: p.Subset,
+	}
+	for _, s := range spec.Sources {
+		dopt.Predictors = append(dopt.Predictors, s.Name)
+		if s.Cat != nil {
+			if dopt.PredictorLevels == nil {
+				dopt.PredictorLevels = map[string][]string{}
+			}
+			dopt.PredictorLevels[s.Name] = s.Cat.Levels
+		}
+	}
+	return dopt
+}
+
+// loadDesign reads an outcome's data and builds its design: the raw
+// columns become design columns, every data-determined constant frozen.
+func loadDesign(p *plan.Plan, oc plan.Outcome) (*data.Dataset, *design.Design, *fit.Data, data.Options, error) {
+	spec := p.DesignSpec(oc)
+	dopt := dataOptions(p, oc, spec)
+	ds, err := data.Load(p.Data.Path, dopt)
+	if err != nil {
+		return nil, nil, nil, dopt, fmt.Errorf("%s (plan %s, outcome %q%s)", err, p.Path, oc.Column, planKeyOf(p, err))
+	}
+	if len(ds.Unobserved) > 0 {
+		return nil, nil, nil, dopt, fmt.Errorf("%s: outcomes: %s: category %q is declared but never observed in the %d rows used; remove it from categories or merge it with a neighbour", p.Path, oc.Column, ds.Unobserved[0], ds.N)
+	}
+	dz, d, err := buildDesign(spec, ds)
+	if err != nil {
+		return nil, nil, nil, dopt, fmt.Errorf("%s: %v (data %s, outcome %q)", p.Path, err, p.Data.File, oc.Column)
+	}
+	return ds, dz, d, dopt, nil
+}
+
+// buildDesign builds the design of spec on a data set read with its
+// sources as predictors, and the fit input.
+func buildDesign(spec design.Spec, ds *data.Dataset) (*design.Design, *fit.Data, error) {
+	dz, err := design.Build(spec, ds.X, ds.N, ds.Weights, ds.Lines)
+	if err != nil {
+		return nil, nil, err
+	}
+	X, i, err := dz.Matrix(ds.X, ds.N)
+	if err != nil {
+		return nil, nil, fmt.Errorf("data line %d: %v", ds.Lines[i], err)
+	}
+	d := &fit.Data{Y: ds.Y, J: len(ds.Levels), X: X, Predictors: dz.Columns, Levels: ds.Levels,
+		Weights: ds.Weights, Offset: ds.Offset}
+	return dz, d, nil
+}
+
+// planKeyOf names the plan key behind a data error on a categorical
+// column or a subset column.
+func planKeyOf(p *plan.Plan, err error) string {
+	var de *data.Error
+	if !errors.As(err, &de) || de.Column == "" {
+		return ""
+	}
+	if c := p.CategoricalOf(de.Column); c != nil {
+		return ", plan key " + c.Key
+	}
+	for _, k := range p.Subset {
+		if k.Column == de.Column {
+			return ", plan key " + k.Key
+		}
+	}
+	return ""
+}
+
+// termsOf lists the outcome's terms with their design columns.
+func termsOf(dz *design.Design) []fit.Term {
+	out := make([]fit.Term, len(dz.Terms))
+	for i, t := range dz.Terms {
+		out[i] = fit.Term{Name: t.Name, Columns: t.Columns}
+	}
+	return out
+}
+
+// termNames lists the names of terms.
+func termNames(ts []fit.Term) []string {
+	out := make([]string, len(ts))
+	for i, t := range ts {
+		out[i] = t.Name
+	}
+	return out
+}
+
+// columnsOf gives the design columns of the named terms, in the order
+// named; names that are not terms of the outcome are left out.
+func columnsOf(ts []fit.Term, names []string) []string {
+	var out []string
+	for _, n := range names {
+		for _, t := range ts {
+			if t.Name == n {
+				out = append(out, t.Columns...)
+			}
+		}
+	}
+	return out
+}
+
+// allColumns lists every design column of the terms.
+func allColumns(ts []fit.Term) []string {
+	var out []string
+	for _, t := range ts {
+		out = append(out, t.Columns...)
+	}
+	return out
+}
+
+// termsIn keeps the names that are terms of the outcome, in order.
+func termsIn(ts []fit.Term, names []string) []string {
+	var out []string
+	for _, n := range names {
+		if slices.Contains(termNames(ts), n) {
+			out = append(out, n)
+		}
+	}
+	return out
+}
+
+// describeTerms says, for the report, how each term that is not a plain
+// numeric column became design columns.
+func describeTerms(dz *design.Design) []string {
+	var out []string
+	for _, r := range dz.Records() {
+		if r.Kind == design.KindNumeric && len(r.Columns) == 1 && r.Columns[0] == r.Term && !r.Log && !r.Sqrt && r.CentreAt == nil && r.ScaledBy == nil {
+			continue
+		}
+		var what string
+		switch r.Kind {
+		case design.KindCategorical:
+			what = fmt.Sprintf("categorical %s, %s coding, reference %q, levels %s", r.Reads[0], r.Coding, r.Reference, strings.Join(r.Levels, ", "))
+			if len(r.Dropped) > 0 {
+				what += fmt.Sprintf(" (never observed, dropped: %s)", strings.Join(r.Dropped, ", "))
+			}
+		case design.KindInteraction:
+			what = "interaction of " + strings.Join(dz.Terms[dz.Term(r.Term)].PartNames(dz), " and ")
+		default:
+			what = describeNumeric(r)
+		}
+		out = append(out, fmt.Sprintf("%s: %s; columns %s", r.Term, what, strings.Join(r.Columns, ", ")))
+	}
+	return out
+}
+
+func describeNumeric(r design.TermRecord) string {
+	v := r.Reads[0]
+	switch {
+	case r.Log && r.Shift != 0:
+		v = fmt.Sprintf("log(%s + %g)", v, r.Shift)
+	case r.Log:
+		v = fmt.Sprintf("log(%s)", v)
+	case r.Sqrt:
+		v = fmt.Sprintf("sqrt(%s)", v)
+	}
+	if r.CentreAt != nil {
+		v = fmt.Sprintf("(%s - %.6g)", v, *r.CentreAt)
+		if r.CentreBy == "sample mean" {
+			v += " [sample mean]"
+		}
+	}
+	if r.ScaledBy != nil {
+		v = fmt.Sprintf("%s / %.6g [sample SD]", v, *r.ScaledBy)
+	}
+	switch {
+	case r.Poly > 0:
+		return fmt.Sprintf("%s polynomial of degree %d in %s", r.PolyBasis, r.Poly, v)
+	case len(r.Knots) > 0:
+		ks := make([]string, len(r.Knots))
+		for i, k := range r.Knots {
+			ks[i] = fmt.Sprintf("%.6g", k)
+		}
+		where := "stated knots"
+		if len(r.KnotsAt) > 0 {
+			where = "knots at sample quantiles"
+		}
+		return fmt.Sprintf("natural cubic spline in %s, %s %s", v, where, strings.Join(ks, ", "))
+	}
+	return v
+}
