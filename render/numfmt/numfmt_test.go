@@ -1,0 +1,109 @@
+package numfmt
+
+import (
+	"fmt"
+	"math"
+	"testing"
+)
+
+// Num: six significant digits in fixed notation between 1e-4 and 1e6,
+// four decimals of scientific notation outside (and where six significant
+// digits round up to 1e6), words for what is not a number.
+func TestNum(t *testing.T) {
+	cases := []struct {
+		x    float64
+		want string
+	}{
+		{0, "0"},
+		{math.Copysign(0, -1), "0"}, // no "-0"
+		{1, "1"},
+		{-1, "-1"},
+		{12.5, "12.5"},
+		{0.1 + 0.2, "0.3"}, // binary noise below six digits is not shown
+		{1.0 / 3, "0.333333"},
+		{-2.0 / 3, "-0.666667"},
+		{123456.7, "123457"},
+		{999999.4, "999999"},
+		{999999.5, "1.0000e+06"}, // rounds to 1e6: scientific, never "1e+06"
+		{1e6, "1.0000e+06"},
+		{1234567, "1.2346e+06"},
+		{1e-4, "0.0001"},
+		{0.00012345678, "0.000123457"},
+		{9.9999e-5, "9.9999e-05"},
+		{-3.2e-7, "-3.2000e-07"},
+		{1e-10, "1.0000e-10"},
+		{math.NaN(), "n/a"},
+		{math.Inf(1), "inf"},
+		{math.Inf(-1), "-inf"},
+	}
+	for _, c := range cases {
+		if got := Num(c.x); got != c.want {
+			t.Errorf("Num(%v) = %q, want %q", c.x, got, c.want)
+		}
+	}
+}
+
+// Fixed rounds the exact binary value (0.125 is exact and goes to the even
+// neighbour; 1.005 is stored just below and goes down); what is not a
+// number reads as in Num.
+func TestFixed(t *testing.T) {
+	cases := []struct {
+		x    float64
+		d    int
+		want string
+	}{
+		{3.14159, 2, "3.14"},
+		{1234.5678, 3, "1234.568"},
+		{2.5, 0, "2"},
+		{3.5, 0, "4"},
+		{0.125, 2, "0.12"},
+		{-1.005, 2, "-1.00"},
+		{7, 3, "7.000"},
+		{math.NaN(), 3, "n/a"},
+		{math.Inf(-1), 2, "-inf"},
+	}
+	for _, c := range cases {
+		if got := Fixed(c.x, c.d); got != c.want {
+			t.Errorf("Fixed(%v, %d) = %q, want %q", c.x, c.d, got, c.want)
+		}
+	}
+}
+
+// PValue: four decimals, and "<0.0001" below 1e-4 (never a rounded 0).
+func TestPValue(t *testing.T) {
+	cases := []struct {
+		p    float64
+		want string
+	}{
+		{0, "<0.0001"},
+		{9.999e-5, "<0.0001"},
+		{1e-4, "0.0001"},
+		{0.00015, "0.0001"},
+		{0.049999, "0.0500"},
+		{0.05, "0.0500"},
+		{0.5, "0.5000"},
+		{1, "1.0000"},
+		{math.NaN(), "n/a"},
+	}
+	for _, c := range cases {
+		if got := PValue(c.p); got != c.want {
+			t.Errorf("PValue(%v) = %q, want %q", c.p, got, c.want)
+		}
+	}
+}
+
+
+func ExampleNum() {
+	fmt.Println(Num(-1234.56789), Num(0.000123456789), Num(2.5e7), Num(math.NaN()))
+	// Output: -1234.57 0.000123457 2.5000e+07 n/a
+}
+
+func ExampleFixed() {
+	fmt.Println(Fixed(-2842.6881769, 3), Fixed(1.96, 1))
+	// Output: -2842.688 2.0
+}
+
+func ExamplePValue() {
+	fmt.Println(PValue(0.03125), PValue(2e-9))
+	// Output: 0.0312 <0.0001
+}
