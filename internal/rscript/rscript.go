@@ -1,0 +1,203 @@
+// Package rscript runs R for the cross-check tests: it finds Rscript, runs
+// R scripts in a test's temporary folder, and reads back what they print and
+// write. The scripts print one value list per line, "name v1 v2 ...", each
+// number with 17 significant digits (sprintf("%.17g")), so that no digit is
+// lost on the way; base R has no JSON writer and needs none for this.
+//
+// A test calls Require first: where Rscript is not on PATH the test is
+// skipped with one line.
+package rscript
+
+import (
+	"bufio"
+	"bytes"
+	"context"
+	"encoding/csv"
+	"fmt"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+	"time"
+)
+
+// timeout bounds one run of R.
+const timeout = 2 * time.Minute
+
+// Require returns the path of Rscript, or skips the test with one line when
+// it is not on PATH.
+func Require(t testing.TB) string {
+	t.Helper()
+	p, err := exec.LookPath("Rscript")
+	if err != nil {
+		t.Skip("Rscript is not on PATH: the cross-checks against R are skipped (Debian: apt-get install r-base-core r-cran-nnet)")
+	}
+	return p
+}
+
+// HasPackage reports whether the R package pkg can be loaded.
+func HasPackage(t testing.TB, pkg string) bool {
+	t.Helper()
+	p := Require(t)
+	cmd := exec.Command(p, "--vanilla", "-e", fmt.Sprintf("cat(requireNamespace(%q, quietly = TRUE))", pkg))
+	out, err := cmd.Output()
+	return err == nil && strings.TrimSpace(string(out)) == "TRUE"
+}
+
+// Values are the value lists a script printed, by name.
+type Values map[string][]float64
+
+// Get returns the list called name; the test fails when the script did not
+// print it.
+func (v Values) Get(t testing.TB, name string) []float64 {
+	t.Helper()
+	x, ok := v[name]
+	if !ok {
+		t.Fatalf("R printed no value %q", name)
+	}
+	return x
+}
+
+// Scalar returns the single value called name.
+func (v Values) Scalar(t testing.TB, name string) float64 {
+	t.Helper()
+	x := v.Get(t, name)
+	if len(x) != 1 {
+		t.Fatalf("R printed %d values for %q, want 1", len(x), name)
+	}
+	return x[0]
+}
+
+// Run concatenates the R files (in order) into dir/check.R, runs it with
+// `Rscript --vanilla` in dir and parses its standard output. Lines that do
+// not start with a name followed by numbers fail the test, so nothing R
+// prints goes unread.
+func Run(t testing.TB, dir string, files ...string) Values {
+	t.Helper()
+	p := Require(t)
+	var src bytes.Buffer
+	for _, f := range files {
+		b, err := os.ReadFile(f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		fmt.Fprintf(&src, "## ---- %s\n", filepath.Base(f))
+		src.Write(b)
+		src.WriteString("\n")
+	}
+	script := filepath.Join(dir, "check.R")
+	if err := os.WriteFile(script, src.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	ctx, cancel := context.WithTimeout(context.Background(), timeout)
+	defer cancel()
+	cmd := exec.CommandContext(ctx, p, "--vanilla", "check.R")
+	cmd.Dir = dir
+	var stdout, stderr bytes.Buffer
+	cmd.Stdout, cmd.Stderr = &stdout, &stderr
+	if err := cmd.Run(); err != nil {
+		t.Fatalf("Rscript %s: %v\n%s", strings.Join(files, " "), err, stderr.String())
+	}
+	vals, err := parse(stdout.Bytes())
+	if err != nil {
+		t.Fatalf("Rscript %s: %v", strings.Join(files, " "), err)
+	}
+	return vals
+}
+
+func parse(b []byte) (Values, error) {
+	vals := Values{}
+	sc := bufio.NewScanner(bytes.NewReader(b))
+	sc.Buffer(make([]byte, 1<<20), 1<<26)
+	line := 0
+	for sc.Scan() {
+		line++
+		f := strings.Fields(sc.Text())
+		if len(f) == 0 {
+			continue
+		}
+		if _, dup := vals[f[0]]; dup {
+			return nil, fmt.Errorf("output line %d: %q printed twice", line, f[0])
+		}
+		x := make([]float64, 0, len(f)-1)
+		for _, s := range f[1:] {
+			v, err := strconv.ParseFloat(s, 64)
+			if err != nil {
+				return nil, fmt.Errorf("output line %d (%s): %q is not a number", line, f[0], s)
+			}
+			x = append(x, v)
+		}
+		vals[f[0]] = x
+	}
+	return vals, sc.Err()
+}
+
+// Table is a numeric CSV file: its header and one column per name.
+type Table struct {
+	Names []string
+	Cols  map[string][]float64
+	Rows  int
+}
+
+// Col returns the column called name; the test fails when there is none.
+func (tb *Table) Col(t testing.TB, name string) []float64 {
+	t.Helper()
+	c, ok := tb.Cols[name]
+	if !ok {
+		t.Fatalf("no column %q (have %v)", name, tb.Names)
+	}
+	return c
+}
+
+// ReadCSV reads a CSV file of numbers with a header line, as R's write.csv
+// writes it (quoted names, row.names = FALSE).
+func ReadCSV(t testing.TB, path string) *Table {
+	t.Helper()
+	f, err := os.Open(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	recs, err := csv.NewReader(f).ReadAll()
+	if err != nil {
+		t.Fatalf("%s: %v", path, err)
+	}
+	if len(recs) < 2 {
+		t.Fatalf("%s: no data rows", path)
+	}
+	tb := &Table{Names: recs[0], Cols: map[string][]float64{}, Rows: len(recs) - 1}
+	for j, name := range tb.Names {
+		col := make([]float64, tb.Rows)
+		for i, rec := range recs[1:] {
+			v, err := strconv.ParseFloat(rec[j], 64)
+			if err != nil {
+				t.Fatalf("%s line %d column %q: %q is not a number", path, i+2, name, rec[j])
+			}
+			col[i] = v
+		}
+		tb.Cols[name] = col
+	}
+	return tb
+}
+
+// WriteCSV writes columns of numbers with a header line, every number in
+// the shortest form that reads back to the same float64.
+func WriteCSV(t testing.TB, path string, names []string, cols [][]float64) {
+	t.Helper()
+	var b bytes.Buffer
+	w := csv.NewWriter(&b)
+	_ = w.Write(names)
+	rec := make([]string, len(cols))
+	for i := range cols[0] {
+		for j, c := range cols {
+			rec[j] = strconv.FormatFloat(c[i], 'g', -1, 64)
+		}
+		_ = w.Write(rec)
+	}
+	w.Flush()
+	if err := os.WriteFile(path, b.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+}

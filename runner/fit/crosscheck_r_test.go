@@ -1,0 +1,574 @@
+package fit_test
+
+// The cross-check suite against R's general-purpose routines (stats::glm
+// and nnet::multinom; no package made for ordinal regression). It runs when
+// Rscript is on PATH and skips with one line otherwise. Each check writes
+// its data to a temporary folder, runs an R script of testdata/rcheck
+// (common.R first) and compares what R prints, to 17 digits, with the fits
+// of this package through exact identities:
+//
+//   - two categories: every comparison and every link equals a binary glm;
+//   - stage models (forward, backward; nonparallel and parallel) equal
+//     binary glms on the expanded data;
+//   - the adjacent nonparallel logit equals multinom's multinomial logit;
+//   - frequency weights equal duplicated rows;
+//   - sandwich (with and without small-sample factor) and cluster-robust
+//     covariances equal a sandwich computed by hand in R from glm's score
+//     contributions and the observed information.
+//
+// Data: R's own data sets (esoph, infert), exported by the R scripts, and
+// seeded simulations made here. How ordplan's parameters map to glm's
+// (including the loglog link) is derived in testdata/rcheck/common.R.
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+	"testing"
+
+	"ordplan/internal/rscript"
+	"ordplan/runner/fit"
+)
+
+// Tolerances of the suite (relative). Estimates compare relative to the
+// larger of the value and its standard error, so that an estimate near zero
+// is not held to digits it does not have; covariances relative to
+// sqrt(V_ii V_jj).
+const (
+	tolLogLik = 1e-8
+	tolEst    = 1e-6
+	// nnet::multinom maximizes by BFGS, which stops on a relative change of
+	// the log-likelihood (reltol 1e-15 here), not on the gradient: its
+	// estimates and errors are held to 1e-5 relative. Measured with R 4.2
+	// and nnet 7.3: within 5e-8 (estimates) and 1e-8 (errors); the
+	// log-likelihood keeps tolLogLik.
+	tolMultinom = 1e-5
+)
+
+func rfile(name string) string { return filepath.Join("testdata", "rcheck", name) }
+
+// workDir is the folder a check and its R script work in: a temporary one,
+// or, when ORDPLAN_RCHECK_DIR is set, a folder under it named after the
+// check, kept afterwards (with check.R, the data and what R wrote) for
+// running the script by hand.
+func workDir(t *testing.T) string {
+	root := os.Getenv("ORDPLAN_RCHECK_DIR")
+	if root == "" {
+		return t.TempDir()
+	}
+	dir := filepath.Join(root, strings.NewReplacer("/", "-", " ", "_").Replace(t.Name()))
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	return dir
+}
+
+// rLinks are the links with the names the R scripts print them under.
+var rLinks = []struct {
+	link fit.Link
+	name string
+}{
+	{fit.Logit, "logit"}, {fit.Probit, "probit"}, {fit.Cloglog, "cloglog"},
+	{fit.Loglog, "loglog"}, {fit.Cauchit, "cauchit"},
+}
+
+// comparisons are the four ways of comparing categories (stage in both
+// directions).
+var comparisons = []struct {
+	name     string
+	cmp      fit.Comparison
+	backward bool
+}{
+	{"cumulative", fit.Cumulative, false},
+	{"stage", fit.Stage, false},
+	{"stage_backward", fit.Stage, true},
+	{"adjacent", fit.Adjacent, false},
+}
+
+func TestAgainstR(t *testing.T) {
+	rscript.Require(t)
+	t.Run("two categories", testRTwoCategories)
+	t.Run("frequency weights", testRFrequencyWeights)
+	t.Run("stage models", testRStage)
+	t.Run("multinomial logit", testRMultinomial)
+}
+
+// ---- comparisons of numbers
+
+// agreement compares values with R's and records the largest relative
+// difference met per kind of value; report logs them (go test -v shows
+// how far inside the tolerances the suite is).
+type agreement struct {
+	t     *testing.T
+	worst map[string]float64
+}
+
+func newAgreement(t *testing.T) *agreement { return &agreement{t: t, worst: map[string]float64{}} }
+
+func (a *agreement) note(kind string, rel float64) {
+	if rel > a.worst[kind] || math.IsNaN(rel) {
+		a.worst[kind] = rel
+	}
+}
+
+func (a *agreement) report() {
+	kinds := make([]string, 0, len(a.worst))
+	for k := range a.worst {
+		kinds = append(kinds, k)
+	}
+	sort.Strings(kinds)
+	var b strings.Builder
+	for _, k := range kinds {
+		fmt.Fprintf(&b, " %s %.1e;", k, a.worst[k])
+	}
+	a.t.Logf("%s: largest relative differences from R:%s", a.t.Name(), b.String())
+}
+
+func (a *agreement) logLik(label string, got, want float64) {
+	a.t.Helper()
+	rel := math.Abs(got-want) / math.Abs(want)
+	a.note("log-likelihood", rel)
+	if !(rel <= tolLogLik) {
+		a.t.Errorf("%s: log-likelihood %.15g, R %.15g", label, got, want)
+	}
+}
+
+// est compares estimates relative to max(|want|, se).
+func (a *agreement) est(label string, names []string, got, want, se []float64, tol float64) {
+	a.t.Helper()
+	if len(got) != len(want) {
+		a.t.Fatalf("%s: %d estimates, R has %d", label, len(got), len(want))
+	}
+	for i := range got {
+		rel := math.Abs(got[i]-want[i]) / math.Max(math.Abs(want[i]), se[i])
+		a.note("estimates", rel)
+		if !(rel <= tol) {
+			a.t.Errorf("%s: %s = %.12g, R %.12g", label, names[i], got[i], want[i])
+		}
+	}
+}
+
+// errors compares standard errors relative to each.
+func (a *agreement) errors(label string, names []string, got, want []float64, tol float64) {
+	a.t.Helper()
+	if len(got) != len(want) {
+		a.t.Fatalf("%s: %d values, R has %d", label, len(got), len(want))
+	}
+	for i := range got {
+		rel := math.Abs(got[i]-want[i]) / math.Abs(want[i])
+		a.note("standard errors", rel)
+		if !(rel <= tol) {
+			a.t.Errorf("%s: %s = %.12g, R %.12g", label, names[i], got[i], want[i])
+		}
+	}
+}
+
+// cov compares covariance matrices element by element relative to
+// sqrt(V_ii V_jj) of R's matrix.
+func (a *agreement) cov(label string, names []string, got, want []float64) {
+	a.t.Helper()
+	P := len(names)
+	if len(got) != P*P || len(want) != P*P {
+		a.t.Fatalf("%s: covariance sizes %d and %d, want %d", label, len(got), len(want), P*P)
+	}
+	for i := 0; i < P; i++ {
+		for j := 0; j < P; j++ {
+			rel := math.Abs(got[i*P+j]-want[i*P+j]) / math.Sqrt(want[i*P+i]*want[j*P+j])
+			a.note("covariances", rel)
+			if !(rel <= tolEst) {
+				a.t.Errorf("%s: cov(%s, %s) = %.12g, R %.12g", label, names[i], names[j], got[i*P+j], want[i*P+j])
+			}
+		}
+	}
+}
+
+// ---- data
+
+// dataFrom builds fit data from table columns: the outcome column holds
+// categories 1..J (or, with base 0, 0..J-1).
+func dataFrom(t *testing.T, tab *rscript.Table, ycol string, base, J int, preds []string, wcol string) *fit.Data {
+	t.Helper()
+	d := &fit.Data{J: J, Predictors: preds}
+	y := tab.Col(t, ycol)
+	cols := make([][]float64, len(preds))
+	for k, p := range preds {
+		cols[k] = tab.Col(t, p)
+	}
+	for i := range y {
+		d.Y = append(d.Y, int(y[i])-base)
+		for k := range preds {
+			d.X = append(d.X, cols[k][i])
+		}
+	}
+	if wcol != "" {
+		d.Weights = append([]float64(nil), tab.Col(t, wcol)...)
+	}
+	return d
+}
+
+// expand repeats every row as often as its (whole-number) weight says.
+func expand(d *fit.Data) (*fit.Data, []int) {
+	K := len(d.Predictors)
+	x := &fit.Data{J: d.J, Predictors: d.Predictors}
+	var from []int
+	for i, w := range d.Weights {
+		for r := 0; r < int(w); r++ {
+			x.Y = append(x.Y, d.Y[i])
+			x.X = append(x.X, d.X[i*K:(i+1)*K]...)
+			from = append(from, i)
+		}
+	}
+	return x, from
+}
+
+func ids(v []float64) []string {
+	out := make([]string, len(v))
+	for i, x := range v {
+		out[i] = fmt.Sprint(x)
+	}
+	return out
+}
+
+func round(x float64, digits int) float64 {
+	p := math.Pow(10, float64(digits))
+	return math.Round(x*p) / p
+}
+
+// simTwoCategories is seeded data of our own with sampling weights and
+// clusters: 400 rows in 40 clusters of 10; x1 ~ N(0,1) (three decimals),
+// x2 ~ Bernoulli(0.4), a cluster effect u ~ N(0,1); category 2 when
+// x1 - 0.5 x2 + u + e > 0.3 with e standard logistic, else 1; sampling
+// weights uniform on [0.5, 3] (two decimals), unrelated to y.
+func simTwoCategories() (names []string, cols [][]float64) {
+	rng := rand.New(rand.NewPCG(20261202, 2))
+	const n, G = 400, 40
+	u := make([]float64, G)
+	for g := range u {
+		u[g] = rng.NormFloat64()
+	}
+	cols = make([][]float64, 5)
+	for i := 0; i < n; i++ {
+		g := i / (n / G)
+		x1 := round(rng.NormFloat64(), 3)
+		x2 := 0.0
+		if rng.Float64() < 0.4 {
+			x2 = 1
+		}
+		p := rng.Float64()
+		e := math.Log(p / (1 - p))
+		y := 1.0
+		if x1-0.5*x2+u[g]+e > 0.3 {
+			y = 2
+		}
+		sw := round(0.5+2.5*rng.Float64(), 2)
+		for j, v := range []float64{y, x1, x2, sw, float64(g + 1)} {
+			cols[j] = append(cols[j], v)
+		}
+	}
+	return []string{"y", "x1", "x2", "sw", "g"}, cols
+}
+
+// simFourCategories is seeded data of our own with four categories: 600
+// rows; x1 ~ Bernoulli(0.45), x2 ~ N(0,1), x3 ~ U(0,2) (three decimals); y
+// drawn stage by stage, stopping at category m (m = 1, 2, 3) with
+// probability logistic(tau_m - x'b_m), slopes differing by stage.
+func simFourCategories() (names []string, cols [][]float64) {
+	rng := rand.New(rand.NewPCG(20261202, 4))
+	tau := []float64{-0.5, 0, 0.3}
+	b := [][]float64{{0.6, 0.8, -0.4}, {0.3, 0.5, -0.2}, {0.9, 0.4, 0.1}}
+	cols = make([][]float64, 4)
+	for i := 0; i < 600; i++ {
+		x := []float64{0, round(rng.NormFloat64(), 3), round(2*rng.Float64(), 3)}
+		if rng.Float64() < 0.45 {
+			x[0] = 1
+		}
+		y := 4
+		for m := 0; m < 3; m++ {
+			L := tau[m] - (x[0]*b[m][0] + x[1]*b[m][1] + x[2]*b[m][2])
+			if rng.Float64() < 1/(1+math.Exp(-L)) {
+				y = m + 1
+				break
+			}
+		}
+		for j, v := range []float64{float64(y), x[0], x[1], x[2]} {
+			cols[j] = append(cols[j], v)
+		}
+	}
+	return []string{"y", "x1", "x2", "x3"}, cols
+}
+
+func parallelModel(c fit.Comparison, backward bool, l fit.Link, K int, e fit.Effect) fit.Model {
+	eff := make([]fit.Effect, K)
+	for k := range eff {
+		eff[k] = e
+	}
+	return fit.Model{Comparison: c, Backward: backward, Link: l, Effects: eff}
+}
+
+func mustFit(t *testing.T, label string, d *fit.Data, m fit.Model, opt fit.Options) *fit.Result {
+	t.Helper()
+	r, err := fit.Fit(d, m, opt)
+	if err != nil {
+		t.Fatalf("%s: %v", label, err)
+	}
+	if !r.OK() {
+		t.Fatalf("%s: %s: %s", label, r.Status, r.Message)
+	}
+	return r
+}
+
+// checkSandwiches compares the four sandwich covariances of r with R's
+// hand computation printed under prefix (see sandwich in common.R).
+func (a *agreement) sandwiches(label string, d *fit.Data, r *fit.Result, clusters []string, sampling bool, vals rscript.Values, prefix string) {
+	a.t.Helper()
+	for _, c := range []struct {
+		name     string
+		clusters []string
+		plain    bool
+	}{
+		{"sandwich", nil, false}, {"sandwich_plain", nil, true},
+		{"clustered", clusters, false}, {"clustered_plain", clusters, true},
+	} {
+		var V []float64
+		var err error
+		if c.plain {
+			V, _, err = fit.SandwichHC0(d, r, c.clusters, sampling)
+		} else {
+			V, _, err = fit.Sandwich(d, r, c.clusters, sampling)
+		}
+		if err != nil {
+			a.t.Fatalf("%s %s: %v", label, c.name, err)
+		}
+		a.cov(label+" "+c.name, r.ParamNames, V, vals.Get(a.t, prefix+"."+c.name))
+	}
+}
+
+// ---- the checks
+
+// testRTwoCategories: with two categories every comparison reduces to one
+// binary model, P(y = 1) = F(tau - x'b), which is R's glm, binomial family,
+// with the link mapped as derived in common.R (loglog: cloglog on the other
+// category with negated signs). Checked per link and comparison:
+// log-likelihood, estimates, observed-information errors against the
+// observed information computed by hand in R, expected-information errors
+// against glm's own (summary.glm / vcov), and the sandwich and
+// cluster-robust covariances against R's hand computation.
+//
+// Data: R's infert (datasets package, ?infert: Trichopoulos et al. 1976),
+// outcome case, predictors age, parity, induced, spontaneous, clusters the
+// matched sets (stratum); and seeded simulated data with sampling weights
+// and 40 clusters (simTwoCategories), where R fits glm with the weights as
+// prior weights and the sandwich uses the weighted scores.
+func testRTwoCategories(t *testing.T) {
+	a := newAgreement(t)
+	defer a.report()
+	dir := workDir(t)
+	names, cols := simTwoCategories()
+	rscript.WriteCSV(t, filepath.Join(dir, "sim2.csv"), names, cols)
+	vals := rscript.Run(t, dir, rfile("common.R"), rfile("twocat.R"))
+
+	inf := rscript.ReadCSV(t, filepath.Join(dir, "infert.csv"))
+	sim := rscript.ReadCSV(t, filepath.Join(dir, "sim2.csv"))
+	sets := []struct {
+		name     string
+		d        *fit.Data
+		clusters []string
+		sampling bool
+	}{
+		{"infert", dataFrom(t, inf, "y", 1, 2, []string{"age", "parity", "induced", "spontaneous"}, ""), ids(inf.Col(t, "stratum")), false},
+		{"sim2", dataFrom(t, sim, "y", 1, 2, []string{"x1", "x2"}, "sw"), ids(sim.Col(t, "g")), true},
+	}
+	for _, s := range sets {
+		for _, l := range rLinks {
+			prefix := s.name + "." + l.name
+			theta := vals.Get(t, prefix+".theta")
+			seObs := vals.Get(t, prefix+".se_obs")
+			for _, c := range comparisons {
+				label := fmt.Sprintf("%s %s %s (glm, binomial(%s))", s.name, c.name, l.name, l.name)
+				m := parallelModel(c.cmp, c.backward, l.link, len(s.d.Predictors), fit.Parallel)
+				r := mustFit(t, label, s.d, m, fit.Options{})
+				a.logLik(label, r.LogLik, vals.Scalar(t, prefix+".ll"))
+				a.est(label, r.ParamNames, r.Estimates, theta, seObs, tolEst)
+				if !s.sampling {
+					a.logLik(label+" logLik.glm", r.LogLik, vals.Scalar(t, prefix+".ll_glm"))
+					a.errors(label+" observed-information errors", r.ParamNames, r.StdErrors, seObs, tolEst)
+					re := mustFit(t, label, s.d, m, fit.Options{Covariance: fit.CovEIM})
+					a.errors(label+" expected-information errors (glm's)", r.ParamNames, re.StdErrors, vals.Get(t, prefix+".se_glm"), tolEst)
+				}
+				a.sandwiches(label, s.d, r, s.clusters, s.sampling, vals, prefix)
+			}
+		}
+	}
+}
+
+// testRFrequencyWeights: frequency weights equal duplicated rows, in R
+// (glm with prior weights against glm on the rows repeated) and here (a
+// weighted fit and a fit of the repeated rows, both against R's weighted
+// glm), for every link: log-likelihood, estimates, both kinds of errors and
+// the sandwiches (frequency weights: B = sum w_i s_i s_i', N = sum of
+// weights; clusters: the cells).
+//
+// Data: R's esoph (datasets package, ?esoph: Breslow & Day 1980), one row
+// per cell and case status weighted by the number of subjects; outcome case
+// status, predictors the scores of agegp, alcgp and tobgp.
+func testRFrequencyWeights(t *testing.T) {
+	a := newAgreement(t)
+	defer a.report()
+	dir := workDir(t)
+	vals := rscript.Run(t, dir, rfile("common.R"), rfile("weights.R"))
+	tab := rscript.ReadCSV(t, filepath.Join(dir, "esoph.csv"))
+	preds := []string{"agegp", "alcgp", "tobgp"}
+	dw := dataFrom(t, tab, "case", 0, 2, preds, "w")
+	cells := ids(tab.Col(t, "cell"))
+	dx, from := expand(dw)
+	cellsX := make([]string, len(from))
+	for i, j := range from {
+		cellsX[i] = cells[j]
+	}
+	for _, l := range rLinks {
+		w, x := "esoph.w."+l.name, "esoph.x."+l.name
+		m := parallelModel(fit.Cumulative, false, l.link, len(preds), fit.Parallel)
+		label := fmt.Sprintf("esoph %s (glm, binomial(%s))", l.name, l.name)
+		rw := mustFit(t, label+" weighted", dw, m, fit.Options{})
+		seObs := vals.Get(t, w+".se_obs")
+
+		// In R: the weighted glm equals the glm of the repeated rows.
+		a.logLik(label+" R repeated vs weighted", vals.Scalar(t, x+".ll_glm"), vals.Scalar(t, w+".ll_glm"))
+		a.est(label+" R repeated vs weighted", rw.ParamNames, vals.Get(t, x+".theta"), vals.Get(t, w+".theta"), seObs, tolEst)
+		a.errors(label+" R repeated vs weighted", rw.ParamNames, vals.Get(t, x+".se_obs"), seObs, tolEst)
+		for _, kind := range []string{"sandwich", "sandwich_plain", "clustered", "clustered_plain"} {
+			a.cov(label+" R repeated vs weighted "+kind, rw.ParamNames, vals.Get(t, x+"."+kind), vals.Get(t, w+"."+kind))
+		}
+
+		// Here: the weighted fit and the fit of the repeated rows, against
+		// R's weighted glm.
+		for _, c := range []struct {
+			name     string
+			d        *fit.Data
+			clusters []string
+		}{{"weighted", dw, cells}, {"repeated rows", dx, cellsX}} {
+			lab := label + " " + c.name
+			r := mustFit(t, lab, c.d, m, fit.Options{})
+			a.logLik(lab, r.LogLik, vals.Scalar(t, w+".ll_glm"))
+			a.est(lab, r.ParamNames, r.Estimates, vals.Get(t, w+".theta"), seObs, tolEst)
+			a.errors(lab+" observed-information errors", r.ParamNames, r.StdErrors, seObs, tolEst)
+			re := mustFit(t, lab, c.d, m, fit.Options{Covariance: fit.CovEIM})
+			a.errors(lab+" expected-information errors (glm's)", r.ParamNames, re.StdErrors, vals.Get(t, w+".se_glm"), tolEst)
+			if r.NObs != float64(len(dx.Y)) {
+				t.Errorf("%s: %g observations, want %d", lab, r.NObs, len(dx.Y))
+			}
+			a.sandwiches(lab, c.d, r, c.clusters, false, vals, w)
+		}
+	}
+}
+
+// testRStage: the forward and backward stage models equal binary glms on
+// the expanded data (stage.R): nonparallel, one glm per stage (the
+// log-likelihood is the sum of the stages'); parallel, one glm of all
+// stages' rows with a threshold per stage. Checked for every link:
+// log-likelihood, estimates, and observed-information errors against the
+// observed information of the stage glms computed by hand in R (for the
+// logit, glm's own errors, which are then the same). The program's
+// expected information takes the expectation over the whole outcome, the
+// stages a row would reach included, so it is not the stage glms' and is
+// not compared.
+//
+// Data: R's esoph (datasets package, ?esoph: Breslow & Day 1980) with the
+// alcohol group as the outcome (4 categories), predictors the agegp and
+// tobgp scores and case status, frequency weights the number of subjects;
+// and seeded simulated data with four categories (simFourCategories).
+func testRStage(t *testing.T) {
+	a := newAgreement(t)
+	defer a.report()
+	dir := workDir(t)
+	names, cols := simFourCategories()
+	rscript.WriteCSV(t, filepath.Join(dir, "sim4.csv"), names, cols)
+	vals := rscript.Run(t, dir, rfile("common.R"), rfile("stage.R"))
+	es := rscript.ReadCSV(t, filepath.Join(dir, "esoph.csv"))
+	sim := rscript.ReadCSV(t, filepath.Join(dir, "sim4.csv"))
+	sets := []struct {
+		name string
+		d    *fit.Data
+	}{
+		{"esoph", dataFrom(t, es, "alcgp", 1, 4, []string{"agegp", "tobgp", "case"}, "w")},
+		{"sim4", dataFrom(t, sim, "y", 1, 4, []string{"x1", "x2", "x3"}, "")},
+	}
+	for _, s := range sets {
+		for _, l := range rLinks {
+			for _, dir := range []string{"forward", "backward"} {
+				for _, eff := range []fit.Effect{fit.Parallel, fit.Nonparallel} {
+					prefix := fmt.Sprintf("%s.%s.%s.%s", s.name, dir, eff, l.name)
+					label := fmt.Sprintf("%s stage %s %s %s (glm, binomial(%s), expanded data)", s.name, dir, eff, l.name, l.name)
+					m := parallelModel(fit.Stage, dir == "backward", l.link, len(s.d.Predictors), eff)
+					r := mustFit(t, label, s.d, m, fit.Options{})
+					seObs := vals.Get(t, prefix+".se_obs")
+					a.logLik(label, r.LogLik, vals.Scalar(t, prefix+".ll"))
+					a.logLik(label+" logLik.glm", r.LogLik, vals.Scalar(t, prefix+".ll_glm"))
+					a.est(label, r.ParamNames, r.Estimates, vals.Get(t, prefix+".theta"), seObs, tolEst)
+					a.errors(label+" observed-information errors", r.ParamNames, r.StdErrors, seObs, tolEst)
+					if l.link == fit.Logit {
+						a.errors(label+" errors (glm's)", r.ParamNames, r.StdErrors, vals.Get(t, prefix+".se_glm"), tolEst)
+					}
+				}
+			}
+		}
+	}
+}
+
+// testRMultinomial: the adjacent-category logit with every effect
+// nonparallel is the multinomial logit reparameterized: same
+// log-likelihood, and its baseline-category form (Result.Baseline) equals
+// nnet::multinom's coefficients and standard errors, against the first and
+// against the last category. multinom's BFGS optimizer is run to its
+// rounding limit (multinom.R); its estimates and errors are compared within
+// tolMultinom (1e-5 relative), the log-likelihood within 1e-8.
+//
+// Data: R's esoph (datasets package, ?esoph: Breslow & Day 1980) with the
+// alcohol group as the outcome, as in testRStage; and simFourCategories.
+func testRMultinomial(t *testing.T) {
+	if !rscript.HasPackage(t, "nnet") {
+		t.Skip("R package nnet is not installed: the multinomial cross-check is skipped (Debian: r-cran-nnet)")
+	}
+	a := newAgreement(t)
+	defer a.report()
+	dir := workDir(t)
+	names, cols := simFourCategories()
+	rscript.WriteCSV(t, filepath.Join(dir, "sim4.csv"), names, cols)
+	vals := rscript.Run(t, dir, rfile("common.R"), rfile("multinom.R"))
+	es := rscript.ReadCSV(t, filepath.Join(dir, "esoph.csv"))
+	sim := rscript.ReadCSV(t, filepath.Join(dir, "sim4.csv"))
+	sets := []struct {
+		name string
+		d    *fit.Data
+	}{
+		{"esoph", dataFrom(t, es, "alcgp", 1, 4, []string{"agegp", "tobgp", "case"}, "w")},
+		{"sim4", dataFrom(t, sim, "y", 1, 4, []string{"x1", "x2", "x3"}, "")},
+	}
+	for _, s := range sets {
+		m := parallelModel(fit.Adjacent, false, fit.Logit, len(s.d.Predictors), fit.Nonparallel)
+		label := s.name + " adjacent nonparallel logit (nnet::multinom)"
+		r := mustFit(t, label, s.d, m, fit.Options{})
+		for _, ref := range []struct {
+			name string
+			cat  int
+		}{{"first", 0}, {"last", s.d.J - 1}} {
+			prefix := s.name + "." + ref.name
+			lab := label + " against the " + ref.name + " category"
+			if c := vals.Scalar(t, prefix+".convergence"); c != 0 {
+				t.Fatalf("%s: multinom stopped at its iteration limit (convergence %g)", lab, c)
+			}
+			a.logLik(lab, r.LogLik, vals.Scalar(t, prefix+".ll"))
+			b, err := r.Baseline(ref.cat)
+			if err != nil {
+				t.Fatal(err)
+			}
+			se := vals.Get(t, prefix+".se")
+			a.est(lab, b.Names, b.Estimates, vals.Get(t, prefix+".est"), se, tolMultinom)
+			a.errors(lab+" errors", b.Names, b.StdErrors, se, tolMultinom)
+		}
+	}
+}
