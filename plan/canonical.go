@@ -41,6 +41,7 @@ type canonPlan struct {
 	Covariance  string           `json:"covariance"`
 	Report      canonReport      `json:"report"`
 	Inference   canonInference   `json:"inference"`
+	Dictionary  map[string]any   `json:"dictionary,omitempty"`
 }
 
 type canonData struct {
@@ -138,9 +139,10 @@ func (p *Plan) canonical() canonPlan {
 			ConfidenceLevel: p.Report.ConfidenceLevel,
 			Timestamp:       p.Report.Timestamp,
 		},
-		Inference: p.Inference.canonical(),
-		Outcomes:  []canonOutcome{},
-		Rules:     []map[string]any{},
+		Inference:  p.Inference.canonical(),
+		Dictionary: p.canonicalDictionary(),
+		Outcomes:   []canonOutcome{},
+		Rules:      []map[string]any{},
 	}
 	if p.Data.Weights != "" {
 		c.Data.WeightKind = optional(p.Data.WeightKind)

@@ -22,6 +22,9 @@ func (d *decoder) check(p *Plan) {
 	d.checkGroups(p)
 	d.checkRules(p)
 	if d.predictorsKnown(p) {
+		d.checkDictionary(p)
+	}
+	if d.predictorsKnown(p) {
 		d.checkInference(p)
 	}
 	if f := p.Report.FocusPredictor; d.given("report.focus_predictor") && d.predictorsKnown(p) && !slices.Contains(p.Predictors, f) && !slices.Contains(p.SourceColumns(), f) {

@@ -145,6 +145,9 @@ func (d *decoder) decodePlan(root *yaml.Node, p *Plan) {
 	m.word("covariance", "covariance", covarianceWords, &p.Covariance)
 	d.decodeReport(m.get("report"), &p.Report)
 	d.decodeInference(m.get("inference"), &p.Inference, p.Dir)
+	if v := m.get("dictionary"); v != nil {
+		p.Dictionary = d.decodeDictionary(v)
+	}
 	if v := m.get("deviations"); v != nil {
 		p.Deviations = d.decodeDeviations(v)
 	}

@@ -31,6 +31,7 @@ type Plan struct {
 	Report     Report
 	Covariance string // "oim" (default), "eim", "robust", "cluster"
 	Inference  Inference
+	Dictionary []Entry     // what each used column holds (optional; when given, every used column)
 	Deviations []Deviation // why the plan departs from its frozen form; not in the canonical form
 }
 

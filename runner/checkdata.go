@@ -10,6 +10,9 @@ import (
 // CheckData checks a plan against its data file: the file reads, every
 // named column exists, and every declared category is observed.
 func CheckData(p *plan.Plan) error {
+	if err := ValidateData(p); err != nil {
+		return err
+	}
 	for _, oc := range p.Outcomes {
 		_, _, d, _, err := loadDesign(p, oc)
 		if err != nil {

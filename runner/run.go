@@ -35,6 +35,9 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 	if err != nil {
 		return nil, fmt.Errorf("%s: data.file: %v", p.Path, err)
 	}
+	if err := ValidateData(p); err != nil {
+		return nil, err
+	}
 	sum := sha256.Sum256(raw)
 	res := &Result{Plan: p, DataHash: hex.EncodeToString(sum[:]), Version: Version}
 	if p.Report.Timestamp {

@@ -32,6 +32,8 @@ func TestInitSkeleton(t *testing.T) {
 		"#   site    text, 3 values: north, south, east (categorical; ordered?)",
 		"categories: [1, 2, 3]",
 		"predictors: [dose, smoker]",
+		"  dose:   {range: [0.5, 2], label: null, unit: null}   # EDIT: the possible range (observed 0.5 to 2)",
+		"  smoker: {values: [0, 1], label: null, unit: null}",
 	} {
 		if !strings.Contains(string(text), want) {
 			t.Errorf("want %q in\n%s", want, text)

@@ -11,6 +11,7 @@ import (
 
 	"ordplan/render"
 	"ordplan/runner"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 
@@ -70,6 +71,14 @@ func run(args []string, stdout, stderr io.Writer) int {
 
 // fail prints a one-line message and returns the failure code.
 func fail(stderr io.Writer, err error) int {
+	var ve *data.ValidationError
+	if errors.As(err, &ve) {
+		// One problem per line, each with its file, line and column.
+		for _, l := range strings.Split(err.Error(), "\n") {
+			fmt.Fprintf(stderr, "ordplan: %s\n", l)
+		}
+		return exitFail
+	}
 	msg := strings.ReplaceAll(err.Error(), "\n", "; ")
 	fmt.Fprintf(stderr, "ordplan: %s\n", msg)
 	return exitFail

@@ -140,6 +140,32 @@ func TestChangedDataDictionary(t *testing.T) {
 	}
 }
 
+func TestChangedDictionaryEntry(t *testing.T) {
+	withDict := basePlan + "dictionary:\n  a: {range: [0, 10], unit: mg}\n  b: {values: [0, 1]}\n"
+	dir := t.TempDir()
+	path := filepath.Join(dir, "p.yaml")
+	base, err := plan.Parse([]byte(withDict), path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, _, err := Write(New(base, "", frozenAt, "test"), path, false); err != nil {
+		t.Fatal(err)
+	}
+	changed := strings.Replace(withDict, "[0, 10]", "[0, 20]", 1) +
+		"deviations:\n  - key: dictionary.a.range\n    reason: the assay's upper limit was raised before data collection\n"
+	p, err := plan.Parse([]byte(changed), path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	st, err := Check(p, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(st.Changes) != 1 || st.Changes[0].Path != "dictionary.a.range" || st.Changes[0].From != "[0, 10]" || st.Changes[0].To != "[0, 20]" || st.Changes[0].Reason == "" {
+		t.Fatalf("%+v", st.Changes)
+	}
+}
+
 func TestNoLock(t *testing.T) {
 	path := filepath.Join(t.TempDir(), "p.yaml")
 	p, err := plan.Parse([]byte(basePlan), path)

@@ -2,6 +2,7 @@ package skeleton
 
 import (
 	"fmt"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -175,6 +176,26 @@ func Write(in Input) ([]byte, error) {
 		w("# Not listed: %s (text or empty columns; numeric predictors only).", strings.Join(skipped, ", "))
 	}
 	w("")
+	if len(preds) > 0 {
+		w("# What each column holds: check and run validate the data file against it and")
+		w("# the report prints it. Numeric columns: range [min, max] or values; any column:")
+		w("# its own missing-value codes (missing: [\"-9\"]), a label and a unit.")
+		w("dictionary:")
+		for _, name := range preds {
+			i := slices.IndexFunc(in.Columns, func(c data.Profile) bool { return c.Name == name })
+			c, k := in.Columns[i], kinds[i]
+			key := fmt.Sprintf("  %-*s ", width+1, yamlString(c.Name)+":")
+			switch {
+			case k.Word == "binary" || k.Word == "ordered?":
+				w("%s{values: [%s], label: null, unit: null}   # EDIT the label", key, yamlList(c.Values))
+			case k.Word == "numeric":
+				w("%s{range: [%s, %s], label: null, unit: null}   # EDIT: the possible range (observed %s to %s)", key, num(c.Min), num(c.Max), num(c.Min), num(c.Max))
+			default:
+				w("%s{range: null, label: null, unit: null}   # EDIT", key)
+			}
+		}
+		w("")
+	}
 	w("models:")
 	w("  approaches: [cumulative, stage, adjacent]")
 	w("  direction: forward      # stage models only: forward | backward")

@@ -30,6 +30,9 @@ type Options struct {
 	// MissingTokens are the cell values (after trimming spaces) that mean
 	// missing; nil means DefaultMissing.
 	MissingTokens []string
+	// ColumnMissing gives columns their own missing-value codes (such as
+	// "-9" in one column only), besides MissingTokens.
+	ColumnMissing map[string][]string
 }
 
 // DefaultMissing are the missing-value tokens used when
@@ -138,4 +141,17 @@ func (o *Options) missingSet() map[string]bool {
 		m[strings.TrimSpace(t)] = true
 	}
 	return m
+}
+
+// missingIn reports whether a trimmed cell of column col is missing.
+func (r *reader) missingIn(col, cell string) bool {
+	if r.missing[cell] {
+		return true
+	}
+	for _, t := range r.opt.ColumnMissing[col] {
+		if strings.TrimSpace(t) == cell {
+			return true
+		}
+	}
+	return false
 }

@@ -78,7 +78,7 @@ func (r *reader) rows() (*Dataset, error) {
 			}
 			cell := strings.TrimSpace(rec[c.index])
 			line, _ := r.cr.FieldPos(c.index)
-			if r.missing[cell] {
+			if r.missingIn(c.name, cell) {
 				if opt.Refuse {
 					return nil, r.fail(line, c.name, "missing value (%s) where missing values are refused", describeMissing(cell))
 				}
