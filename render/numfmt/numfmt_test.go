@@ -92,7 +92,6 @@ func TestPValue(t *testing.T) {
 	}
 }
 
-
 func ExampleNum() {
 	fmt.Println(Num(-1234.56789), Num(0.000123456789), Num(2.5e7), Num(math.NaN()))
 	// Output: -1234.57 0.000123457 2.5000e+07 n/a
