@@ -73,7 +73,7 @@ func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		}
 		row := []string{pred}
 		for m := range est {
-			row = append(row, fmt.Sprintf("%s (%s)", numfmt.Num(est[m]), numfmt.Num(se[m])))
+			row = append(row, fmt.Sprintf("%s (%s)", numfmt.Est(est[m]), numfmt.Est(se[m])))
 		}
 		row = append(row, slopeCell(par, pred, k))
 		if chosen != nil {
@@ -83,7 +83,7 @@ func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		cs = append(cs, boundaryChart(d, pred, bounds, est, se, z, level, par, chosen, ch.Level, k))
 	}
 	if len(rows) > 0 {
-		d.table(head, rows)
+		d.captioned(fmt.Sprintf("Slopes at each boundary, %s", npID)).table(head, rows)
 	}
 	if len(skipped) > 0 {
 		d.p("Not drawn for %s: the nonparallel fit gives no finite standard error for every boundary.", strings.Join(skipped, ", "))
@@ -144,9 +144,9 @@ func slopeCell(par *runner.FitEntry, pred string, k int) string {
 	}
 	i := paramIndex(par.Result, pred)
 	if i < 0 {
-		return numfmt.Num(par.Result.Effects[0][k])
+		return numfmt.Est(par.Result.Effects[0][k])
 	}
-	return fmt.Sprintf("%s (%s)", numfmt.Num(par.Result.Estimates[i]), numfmt.Num(par.Result.StdErrors[i]))
+	return fmt.Sprintf("%s (%s)", numfmt.Est(par.Result.Estimates[i]), numfmt.Est(par.Result.StdErrors[i]))
 }
 
 // chosenCell lists the chosen model's slopes of predictor k at every
@@ -154,7 +154,7 @@ func slopeCell(par *runner.FitEntry, pred string, k int) string {
 func chosenCell(res *fit.Result, k int) string {
 	parts := make([]string, len(res.Effects))
 	for m := range res.Effects {
-		parts[m] = numfmt.Num(res.Effects[m][k])
+		parts[m] = numfmt.Est(res.Effects[m][k])
 	}
 	return strings.Join(parts, ", ")
 }

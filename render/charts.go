@@ -14,6 +14,7 @@ import (
 // chart is one chart of report.html: its element id, its size, a caption
 // and the option object the chart library draws from.
 type chart struct {
+	number  int // figure number: charts are numbered in page order
 	id      string
 	height  int // pixels; the width follows the page
 	caption string
@@ -34,7 +35,9 @@ func newChart(id string, height int, caption string, c echartsChart) *chart {
 	c.Validate()
 	js := strings.TrimSpace(string(c.JSONNotEscaped()))
 	js = strings.ReplaceAll(js, "<", `\u003c`)
-	return &chart{id: id, height: height, caption: caption, option: js}
+	var n int
+	fmt.Sscanf(id, "chart-%d", &n)
+	return &chart{number: n, id: id, height: height, caption: caption, option: js}
 }
 
 // baseOpts are the options every chart of the report shares: the fixed

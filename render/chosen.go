@@ -21,10 +21,10 @@ func writeChosen(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	for i, n := range res.ParamNames {
 		est, se := res.Estimates[i], res.StdErrors[i]
 		zz := est / se
-		rows = append(rows, []string{ParamLabel(res, n), numfmt.Num(est), numfmt.Num(se), numfmt.Fixed(zz, 2),
-			numfmt.PValue(2 * distuv.UnitNormal.Survival(math.Abs(zz))), numfmt.Num(est - z*se), numfmt.Num(est + z*se)})
+		rows = append(rows, []string{ParamLabel(res, n), numfmt.Est(est), numfmt.Est(se), numfmt.Z(zz),
+			numfmt.PValue(2 * distuv.UnitNormal.Survival(math.Abs(zz))), numfmt.Est(est - z*se), numfmt.Est(est + z*se)})
 	}
-	d.table([]string{"Parameter", "Estimate", "Std. error", "z", "p", pct(level) + " low", pct(level) + " high"}, rows)
+	d.captioned("Estimates of the chosen model, "+or.Chosen.ID).table([]string{"Parameter", "Estimate", "Std. error", "z", "p", pct(level) + " low", pct(level) + " high"}, rows)
 }
 
 // pct writes a confidence level as a percentage: "95%".

@@ -1,6 +1,8 @@
 package render
 
 import (
+	"fmt"
+
 	"ordplan/runner"
 )
 
@@ -31,7 +33,7 @@ func writeDecisionLog(d *doc, or *runner.OutcomeResult) {
 			d.p("No model was left for this rule.")
 			continue
 		}
-		d.table([]string{"Model", "Verdict", "Why"}, rows)
+		d.captioned(fmt.Sprintf("Rule %d, %s: verdict on each model", i+1, ro.Rule.Kind)).table([]string{"Model", "Verdict", "Why"}, rows)
 	}
 	d.p("**Result:** %s.", or.Choice)
 }

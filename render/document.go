@@ -3,7 +3,9 @@ package render
 import (
 	"bytes"
 	"fmt"
+	"regexp"
 	"strings"
+	"unicode"
 )
 
 // doc is a report being written: Markdown text with chart groups between
@@ -14,19 +16,88 @@ type doc struct {
 	parts  []part
 	b      bytes.Buffer // Markdown since the last chart group
 	nChart int          // charts so far, for their fixed ids
+	nTable int          // tables so far, for their numbers
+
+	heads   []heading       // level 2 and 3 headings, for the table of contents
+	slugs   map[string]bool // anchors given so far
+	lastH   string          // the latest heading: the default table caption
+	caption string          // the caption of the next table, when set
 }
 
-// part is a run of Markdown or one group of charts shown side by side.
+// part is a run of Markdown, the table of contents, or one group of
+// charts shown side by side.
 type part struct {
 	md     string
 	charts []*chart
 	note   string // what report.md says in place of the charts
+	toc    bool
+}
+
+// heading is one entry of the table of contents.
+type heading struct {
+	level       int
+	title, slug string
 }
 
 func (d *doc) p(format string, a ...any) { fmt.Fprintf(&d.b, format+"\n\n", a...) }
 
 func (d *doc) h(level int, title string) {
 	fmt.Fprintf(&d.b, "%s %s\n\n", strings.Repeat("#", level), title)
+	if d.slugs == nil {
+		d.slugs = map[string]bool{}
+	}
+	// The anchor a Markdown viewer derives from the heading: lower case,
+	// letters, digits, '-' and '_' kept, spaces to '-', a number added to
+	// a repeat. report.html uses the same anchors.
+	base := slugify(title)
+	slug := base
+	for i := 1; d.slugs[slug]; i++ {
+		slug = fmt.Sprintf("%s-%d", base, i)
+	}
+	d.slugs[slug] = true
+	d.heads = append(d.heads, heading{level, title, slug})
+	d.lastH = strings.Trim(title, "*` ")
+}
+
+// slugify is the anchor of a heading before repeats are numbered.
+func slugify(title string) string {
+	var b strings.Builder
+	for _, r := range strings.ToLower(title) {
+		switch {
+		case unicode.IsLetter(r) || unicode.IsDigit(r) || r == '-' || r == '_':
+			b.WriteRune(r)
+		case r == ' ':
+			b.WriteByte('-')
+		}
+	}
+	return b.String()
+}
+
+// toc places the table of contents here (levels 2 and 3 of the whole
+// report, known once it is written).
+func (d *doc) toc() {
+	d.flush()
+	d.parts = append(d.parts, part{toc: true})
+}
+
+// tocMarkdown is the table of contents as a nested Markdown list.
+func (d *doc) tocMarkdown() string {
+	var b strings.Builder
+	b.WriteString("**Contents**\n\n")
+	for _, h := range d.heads {
+		if h.level < 2 || h.level > 3 {
+			continue
+		}
+		fmt.Fprintf(&b, "%s- [%s](#%s)\n", strings.Repeat("  ", h.level-2), strings.ReplaceAll(h.title, "`", ""), h.slug)
+	}
+	b.WriteString("\n")
+	return b.String()
+}
+
+// captioned sets the caption of the next table (else the latest heading).
+func (d *doc) captioned(caption string) *doc {
+	d.caption = caption
+	return d
 }
 
 // list writes a bulleted list.
@@ -37,14 +108,29 @@ func (d *doc) list(items []string) {
 	d.b.WriteString("\n")
 }
 
-// table writes a Markdown table; cells are escaped for pipes.
+// table writes a numbered Markdown table under its caption; cells are
+// escaped for pipes, and columns whose cells are all numbers are
+// right-aligned.
 func (d *doc) table(head []string, rows [][]string) {
+	d.nTable++
+	caption := d.caption
+	if caption == "" {
+		caption = d.lastH
+	}
+	d.caption = ""
+	fmt.Fprintf(&d.b, "**Table %d.** %s\n\n", d.nTable, caption)
 	esc := func(s string) string { return strings.ReplaceAll(s, "|", `\|`) }
 	cells := make([]string, len(head))
+	var align strings.Builder
 	for i, h := range head {
 		cells[i] = esc(h)
+		if numericColumn(rows, i) {
+			align.WriteString("---:|")
+		} else {
+			align.WriteString("---|")
+		}
 	}
-	fmt.Fprintf(&d.b, "| %s |\n|%s\n", strings.Join(cells, " | "), strings.Repeat("---|", len(head)))
+	fmt.Fprintf(&d.b, "| %s |\n|%s\n", strings.Join(cells, " | "), align.String())
 	for _, r := range rows {
 		cells = cells[:0]
 		for _, c := range r {
@@ -55,10 +141,35 @@ func (d *doc) table(head []string, rows [][]string) {
 	d.b.WriteString("\n")
 }
 
+// numberCell matches a cell that reads as a number: a sign, digits, a
+// decimal point, an exponent, a percent sign, "<" before a small p-value,
+// a value in brackets after it, or a range of two numbers.
+var numberCell = regexp.MustCompile(`^(<|−|-)?[0-9][0-9,]*(\.[0-9]+)?(e[-+]?[0-9]+)?%?( \((-|−)?[0-9.]+(e[-+]?[0-9]+)?%?\))?(–-?[0-9.]+)?$`)
+
+// numericColumn reports whether every non-empty cell of column i is a
+// number (placeholders such as "—" and "n/a" allowed) and one at least is.
+func numericColumn(rows [][]string, i int) bool {
+	seen := false
+	for _, r := range rows {
+		if i >= len(r) {
+			continue
+		}
+		c := strings.TrimSpace(r[i])
+		switch {
+		case c == "" || c == "—" || c == "n/a":
+		case numberCell.MatchString(c):
+			seen = true
+		default:
+			return false
+		}
+	}
+	return seen
+}
+
 // chartID returns the id of the next chart: fixed by its place in the
 // report, so the same run gives the same page.
 func (d *doc) chartID() string {
-	d.nChart++
+	d.nChart++ // the figure number too
 	return fmt.Sprintf("chart-%d", d.nChart)
 }
 
@@ -84,11 +195,17 @@ func (d *doc) markdown() []byte {
 	d.flush()
 	var out bytes.Buffer
 	for _, pt := range d.parts {
-		if pt.charts == nil {
+		switch {
+		case pt.toc:
+			out.WriteString(d.tocMarkdown())
+		case pt.charts == nil:
 			out.WriteString(pt.md)
-			continue
+		default:
+			for _, c := range pt.charts {
+				fmt.Fprintf(&out, "**Figure %d.** %s\n\n", c.number, c.caption)
+			}
+			fmt.Fprintf(&out, "*%s*\n\n", pt.note)
 		}
-		fmt.Fprintf(&out, "*%s*\n\n", pt.note)
 	}
 	return out.Bytes()
 }

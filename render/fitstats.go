@@ -28,14 +28,14 @@ func writeOverallFit(d *doc, or *runner.OutcomeResult) {
 		}
 		row := []string{o.Model, numfmt.Fixed(o.NullLogLik, 3)}
 		if o.LR.OK {
-			row = append(row, numfmt.Fixed(o.LR.Chi2, 3), fmt.Sprint(o.LR.DF), numfmt.PValue(o.LR.P))
+			row = append(row, numfmt.Stat(o.LR.Chi2), fmt.Sprint(o.LR.DF), numfmt.PValue(o.LR.P))
 		} else {
 			row = append(row, "not a test", "", "")
 		}
 		row = append(row, numfmt.Fixed(o.McFadden, 4), numfmt.Fixed(o.CoxSnell, 4), numfmt.Fixed(o.Nagelkerke, 4), mz)
 		rows = append(rows, row)
 	}
-	d.table([]string{"Model", "LL₀ (thresholds only)", "LR chi-square", "df", "p", "McFadden R²", "Cox-Snell R²", "Nagelkerke R²", "McKelvey-Zavoina R²"}, rows)
+	d.captioned("Overall fit: each candidate against its thresholds-only model").table([]string{"Model", "LL₀ (thresholds only)", "LR chi-square", "df", "p", "McFadden R²", "Cox-Snell R²", "Nagelkerke R²", "McKelvey-Zavoina R²"}, rows)
 	for _, o := range or.Overall {
 		if !o.LR.OK && o.LR.Reason != "" {
 			d.p("The likelihood-ratio statistics are not tests here: %s.", o.LR.Reason)
@@ -70,7 +70,7 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		}
 		rows = append(rows, []string{o.Predictor, where, numfmt.Fixed(o.Ratio, 4), numfmt.Fixed(o.Low, 4), numfmt.Fixed(o.High, 4)})
 	}
-	d.table([]string{"Predictor", "Boundary", capitalize(kind), pct(level) + " low", pct(level) + " high"}, rows)
+	d.captioned(capitalize(kind)+"s of the chosen model").table([]string{"Predictor", "Boundary", capitalize(kind), pct(level) + " low", pct(level) + " high"}, rows)
 }
 
 func capitalize(s string) string {
@@ -97,7 +97,7 @@ func writeGoodnessOfFit(d *doc, or *runner.OutcomeResult) {
 	d.p("Rows are sorted by their predicted ordinal score (the expected category, categories scored 1 to %d) and cut into %d groups of about equal size; rows with the same score stay in one group. The Lipsitz test refits the chosen model with an indicator of each group but the first as an extra parallel predictor: if the model describes the data well along its own score, those indicators add nothing.",
 		len(t.Levels), t.Groups)
 	if lz.Test.OK {
-		d.p("Lipsitz test: chi-square(%d) = %s, p = %s.", lz.Test.DF, numfmt.Fixed(lz.Test.Chi2, 3), numfmt.PValue(lz.Test.P))
+		d.p("Lipsitz test: chi-square(%d) = %s, %s.", lz.Test.DF, numfmt.Stat(lz.Test.Chi2), numfmt.PText(lz.Test.P))
 	} else {
 		d.p("Lipsitz test not computed: %s.", lz.Test.Reason)
 	}
@@ -114,7 +114,7 @@ func writeGoodnessOfFit(d *doc, or *runner.OutcomeResult) {
 		}
 		rows = append(rows, row)
 	}
-	d.table(head, rows)
+	d.captioned("Observed and expected counts by group of predicted score").table(head, rows)
 	d.charts("Chart in report.html: observed against expected share of each category by group of predicted score.", calibrationChart(d, or))
 }
 

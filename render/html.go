@@ -7,12 +7,16 @@ import (
 	"strings"
 
 	"github.com/yuin/goldmark"
+	"github.com/yuin/goldmark/ast"
 	"github.com/yuin/goldmark/extension"
+	"github.com/yuin/goldmark/parser"
 )
 
 const css = `body{font-family:system-ui,-apple-system,"Segoe UI",sans-serif;max-width:1100px;margin:2em auto;padding:0 1em;color:#1b1b1b;line-height:1.45}
 table{border-collapse:collapse;margin:0.6em 0 1.2em;font-size:0.9em}th,td{border:1px solid #ccc;padding:0.25em 0.6em;text-align:left;vertical-align:top}
-th{background:#f2f2f2}tr:nth-child(even) td{background:#fafafa}code{background:#f4f4f4;padding:0 0.2em}h2{border-bottom:2px solid #ddd;padding-bottom:0.2em;margin-top:2em}
+th{background:#f2f2f2;white-space:nowrap}td{white-space:nowrap}td[style*="right"],th[style*="right"]{font-variant-numeric:tabular-nums}
+.table-wrap{overflow-x:auto;max-width:100%;margin:0.6em 0 1.2em}.table-wrap table{margin:0}
+nav.toc ul{margin:0.2em 0}tr:nth-child(even) td{background:#fafafa}code{background:#f4f4f4;padding:0 0.2em}h2{border-bottom:2px solid #ddd;padding-bottom:0.2em;margin-top:2em}
 .chart-group{display:flex;flex-wrap:wrap;gap:1em;margin:1em 0 1.5em}.chart-figure{flex:1 1 480px;margin:0;border:1px solid #e3e3e3;padding:0.5em;min-width:0}
 .chart-figure.wide{flex-basis:100%}.chart{width:100%}figcaption{font-size:0.85em;color:#444;margin-top:0.3em}
 #js-errors{white-space:pre-wrap;color:#a00;border:2px solid #a00;padding:0.5em;margin:1em 0}#js-errors:empty{display:none}`
@@ -32,16 +36,31 @@ const drawScript = `function ordplanDraw(id,option){var el=document.getElementBy
 // and the chart options inline.
 func (d *doc) html(title string) ([]byte, error) {
 	d.flush()
-	conv := goldmark.New(goldmark.WithExtensions(extension.Table))
+	conv := goldmark.New(goldmark.WithExtensions(extension.Table), goldmark.WithParserOptions(parser.WithAutoHeadingID()))
 	var out bytes.Buffer
+	ids := &headingIDs{heads: d.heads}
+	convert := func(md string) error {
+		var buf bytes.Buffer
+		if err := conv.Convert([]byte(md), &buf, parser.WithContext(parser.NewContext(parser.WithIDs(ids)))); err != nil {
+			return err
+		}
+		// Wide tables scroll inside their box instead of squeezing cells.
+		h := strings.ReplaceAll(buf.String(), "<table>", `<div class="table-wrap"><table>`)
+		out.WriteString(strings.ReplaceAll(h, "</table>", "</table></div>"))
+		return nil
+	}
 	out.WriteString("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n")
 	out.WriteString("<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n<title>")
 	out.WriteString(html.EscapeString(title))
 	out.WriteString("</title>\n<style>" + css + "</style>\n")
 	out.WriteString("<script>\n" + errorScript + "\n</script>\n</head>\n<body>\n<div id=\"js-errors\" role=\"alert\"></div>\n")
 	for _, pt := range d.parts {
-		if pt.charts == nil {
-			if err := conv.Convert([]byte(pt.md), &out); err != nil {
+		if pt.toc || pt.charts == nil {
+			md := pt.md
+			if pt.toc {
+				md = d.tocMarkdown()
+			}
+			if err := convert(md); err != nil {
 				return nil, err
 			}
 			continue
@@ -52,8 +71,8 @@ func (d *doc) html(title string) ([]byte, error) {
 			if len(pt.charts) == 1 {
 				class += " wide"
 			}
-			fmt.Fprintf(&out, "<figure class=\"%s\"><div class=\"chart\" id=\"%s\" style=\"height:%dpx\"></div><figcaption>%s</figcaption></figure>\n",
-				class, c.id, c.height, html.EscapeString(c.caption))
+			fmt.Fprintf(&out, "<figure class=\"%s\"><div class=\"chart\" id=\"%s\" style=\"height:%dpx\"></div><figcaption><b>Figure %d.</b> %s</figcaption></figure>\n",
+				class, c.id, c.height, c.number, html.EscapeString(c.caption))
 		}
 		out.WriteString("</div>\n")
 	}
@@ -69,3 +88,20 @@ func (d *doc) html(title string) ([]byte, error) {
 	out.WriteString("</body>\n</html>\n")
 	return out.Bytes(), nil
 }
+
+// headingIDs gives the headings of report.html the anchors the table of
+// contents links to (those of report.md), in order of appearance.
+type headingIDs struct {
+	heads []heading
+	next  int
+}
+
+func (h *headingIDs) Generate(value []byte, kind ast.NodeKind) []byte {
+	if kind == ast.KindHeading && h.next < len(h.heads) {
+		h.next++
+		return []byte(h.heads[h.next-1].slug)
+	}
+	return []byte(slugify(string(value)))
+}
+
+func (h *headingIDs) Put(value []byte) {}

@@ -26,7 +26,7 @@ func writeHypotheses(d *doc, or *runner.OutcomeResult) {
 			rows = append(rows, []string{"`" + h.Text + "`", fmt.Sprint(h.Line), model, "", "", "not computed: " + h.Test.Reason})
 			continue
 		}
-		rows = append(rows, []string{"`" + h.Text + "`", fmt.Sprint(h.Line), model, numfmt.Fixed(h.Test.Chi2, 3), fmt.Sprint(h.Test.DF), numfmt.PValue(h.Test.P)})
+		rows = append(rows, []string{"`" + h.Text + "`", fmt.Sprint(h.Line), model, numfmt.Stat(h.Test.Chi2), fmt.Sprint(h.Test.DF), numfmt.PValue(h.Test.P)})
 	}
 	d.table([]string{"Hypothesis", "Plan line", "Model", "Chi-square", "df", "p"}, rows)
 }

@@ -35,8 +35,8 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			if me.Discrete {
 				change = "0 to 1"
 			}
-			rows = append(rows, []string{me.Predictor, change, me.Category, numfmt.Num(me.Effect), numfmt.Num(me.SE),
-				numfmt.Fixed(me.Z, 2), numfmt.PValue(me.P), numfmt.Num(me.Low), numfmt.Num(me.High)})
+			rows = append(rows, []string{me.Predictor, change, me.Category, numfmt.Est(me.Effect), numfmt.Est(me.SE),
+				numfmt.Z(me.Z), numfmt.PValue(me.P), numfmt.Est(me.Low), numfmt.Est(me.High)})
 		}
 		d.table([]string{"Predictor", "Change", "Category", "Effect", "Std. error", "z", "p", pct(level) + " low", pct(level) + " high"}, rows)
 	}

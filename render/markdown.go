@@ -20,6 +20,7 @@ func build(r *runner.Result, dec *runner.Decisions, changes []string) *doc {
 	if r.Started != "" {
 		d.p("Run started at %s (the plan asks for a timestamp, so reruns differ in this line and in run.json).", r.Started)
 	}
+	d.toc()
 	if len(changes) > 0 {
 		d.h(2, "Changes since the previous run")
 		d.list(changes)

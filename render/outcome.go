@@ -46,7 +46,8 @@ func writeData(d *doc, or *runner.OutcomeResult) {
 	for j, l := range ds.Levels {
 		rows = append(rows, []string{l, numfmt.Num(ds.Counts[j]), numfmt.Fixed(100*ds.Counts[j]/ds.NObs(), 1) + "%"})
 	}
-	d.table([]string{"Category", "Count", "Share"}, rows)
+	d.captioned("Outcome categories").table([]string{"Category", "Count", "Share"}, rows)
+	writeDescriptives(d, or)
 }
 
 func writeFreeSets(d *doc, or *runner.OutcomeResult) {
@@ -70,7 +71,7 @@ func writeFreeSets(d *doc, or *runner.OutcomeResult) {
 		for _, st := range s.Result.Steps {
 			var parts []string
 			for _, t := range st.Tests {
-				parts = append(parts, fmt.Sprintf("%s chi2(%d)=%s p=%s", t.Name, t.DF, numfmt.Fixed(t.Chi2, 2), numfmt.PValue(t.P)))
+				parts = append(parts, fmt.Sprintf("%s chi2(%d) = %s, %s", t.Name, t.DF, numfmt.Stat(t.Chi2), numfmt.PText(t.P)))
 			}
 			imposed := st.Imposed
 			if imposed == "" {
@@ -78,9 +79,9 @@ func writeFreeSets(d *doc, or *runner.OutcomeResult) {
 			}
 			rows = append(rows, []string{fmt.Sprint(st.Step), numfmt.Fixed(st.LogLik, 3), strings.Join(parts, "; "), imposed})
 		}
-		d.table([]string{"Step", "Log-likelihood", "Tests of equal slopes", "Made parallel"}, rows)
+		d.captioned(fmt.Sprintf("Stepwise selection of the partial set, %s %s", s.Approach, s.Link)).table([]string{"Step", "Log-likelihood", "Tests of equal slopes", "Made parallel"}, rows)
 		if t := s.Result.FinalTest; t.OK {
-			d.p("Joint test that every predictor made parallel has equal slopes: chi2(%d) = %s, p = %s.", t.DF, numfmt.Fixed(t.Chi2, 2), numfmt.PValue(t.P))
+			d.p("Joint test that every predictor made parallel has equal slopes: chi2(%d) = %s, %s.", t.DF, numfmt.Stat(t.Chi2), numfmt.PText(t.P))
 		}
 	}
 }
@@ -94,7 +95,7 @@ func writeModelTable(d *doc, or *runner.OutcomeResult) {
 		}
 		rows = append(rows, modelRow(f))
 	}
-	d.table([]string{"Model", "Status", "Log-likelihood", "Parameters", "AIC", "BIC", "Rows with P<0", "Verdict"}, rows)
+	d.captioned("The candidate models").table([]string{"Model", "Status", "Log-likelihood", "Parameters", "AIC", "BIC", "Rows with P<0", "Verdict"}, rows)
 	for _, n := range or.Notes {
 		d.p("%s.", n)
 	}

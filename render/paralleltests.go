@@ -23,7 +23,7 @@ func writeTests(d *doc, or *runner.OutcomeResult) {
 			}
 		}
 		if len(rows) > 0 {
-			d.table([]string{"Test", "Chi-square", "df", "p"}, rows)
+			d.captioned(fmt.Sprintf("Parallel-lines tests, %s %s", tb.Approach, tb.Link)).table([]string{"Test", "Chi-square", "df", "p"}, rows)
 		}
 		rows = nil
 		for _, nt := range tb.Nested {
@@ -31,7 +31,7 @@ func writeTests(d *doc, or *runner.OutcomeResult) {
 		}
 		if len(rows) > 0 {
 			d.p("Nested likelihood-ratio tests:")
-			d.table([]string{"Restricted within full", "Chi-square", "df", "p"}, rows)
+			d.captioned(fmt.Sprintf("Nested likelihood-ratio tests, %s %s", tb.Approach, tb.Link)).table([]string{"Restricted within full", "Chi-square", "df", "p"}, rows)
 		}
 	}
 }
@@ -40,7 +40,7 @@ func testRow(label string, t fit.Test) []string {
 	if !t.OK {
 		return []string{label, "", "", "not computed: " + t.Reason}
 	}
-	return []string{label, numfmt.Fixed(t.Chi2, 3), fmt.Sprint(t.DF), numfmt.PValue(t.P)}
+	return []string{label, numfmt.Stat(t.Chi2), fmt.Sprint(t.DF), numfmt.PValue(t.P)}
 }
 
 func testLabel(n string) string {

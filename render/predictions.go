@@ -50,7 +50,7 @@ func writePredictions(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	for i, x := range xs {
 		row := []string{numfmt.Num(x)}
 		for j := 0; j < pred.J; j++ {
-			row = append(row, fmt.Sprintf("%s (%s)", numfmt.Fixed(pred.Prob[i*pred.J+j], 4), numfmt.Fixed(pred.SE[i*pred.J+j], 4)))
+			row = append(row, fmt.Sprintf("%s (%s)", numfmt.Prob(pred.Prob[i*pred.J+j]), numfmt.Prob(pred.SE[i*pred.J+j])))
 		}
 		flag := "no"
 		if pred.Negative[i] {
@@ -59,7 +59,7 @@ func writePredictions(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		}
 		rows = append(rows, append(row, flag))
 	}
-	d.table(head, rows)
+	d.captioned("Predicted probabilities by "+pf.focus).table(head, rows)
 	if neg == 0 {
 		d.p("No predicted probability in this table is negative.")
 	} else {

@@ -151,7 +151,7 @@ func judgeTest(r plan.Rule, p *plan.Plan, or *OutcomeResult, f *FitEntry) (bool,
 	if !t.OK {
 		return true, fmt.Sprintf("the %s test against %s cannot be computed (%s)%s", testName(t.Name), nb.ID, t.Reason, note)
 	}
-	stat := fmt.Sprintf("%s test against %s: chi2(%d) = %s, p = %s%s", testName(t.Name), nb.ID, t.DF, numfmt.Fixed(t.Chi2, 3), numfmt.PValue(t.P), note)
+	stat := fmt.Sprintf("%s test against %s: chi2(%d) = %s, %s%s", testName(t.Name), nb.ID, t.DF, numfmt.Stat(t.Chi2), numfmt.PText(t.P), note)
 	if t.P < r.Alpha {
 		return false, stat + fmt.Sprintf(" < %g", r.Alpha)
 	}

@@ -47,3 +47,47 @@ func PValue(p float64) string {
 	}
 	return fmt.Sprintf("%.4f", p)
 }
+
+// Decimals of each kind of column in the report's tables: estimates and
+// their errors and bounds, test statistics, z values, p-values and
+// probabilities.
+const (
+	EstimateDecimals    = 4
+	StatisticDecimals   = 3
+	ZDecimals           = 2
+	PValueDecimals      = 4
+	ProbabilityDecimals = 4
+)
+
+// Est formats an estimate, a standard error or an interval bound with
+// EstimateDecimals decimals; a non-zero value too small to show a digit
+// there, or too large to read, is written in scientific notation.
+func Est(x float64) string {
+	a := math.Abs(x)
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return Num(x)
+	}
+	if (a > 0 && a < 0.5e-4) || a >= 1e9 {
+		return fmt.Sprintf("%.3e", x)
+	}
+	return Fixed(x, EstimateDecimals)
+}
+
+// Stat formats a test statistic.
+func Stat(x float64) string { return Fixed(x, StatisticDecimals) }
+
+// Z formats a z value.
+func Z(x float64) string { return Fixed(x, ZDecimals) }
+
+// Prob formats a probability.
+func Prob(x float64) string { return Fixed(x, ProbabilityDecimals) }
+
+// PText writes "p = 0.0123" or "p < 0.0001" for running text, the same
+// threshold and digits as PValue.
+func PText(p float64) string {
+	s := PValue(p)
+	if strings.HasPrefix(s, "<") {
+		return "p < " + s[1:]
+	}
+	return "p = " + s
+}

@@ -184,10 +184,34 @@ func TestRead(t *testing.T) {
 				t.Fatal(err)
 			}
 			tc.want.File = "t.csv"
+			d.Missing = nil // checked by TestMissingPatterns
 			if !reflect.DeepEqual(*d, tc.want) {
 				t.Errorf("got  %+v\nwant %+v", *d, tc.want)
 			}
 		})
+	}
+}
+
+// TestMissingPatterns: every missing cell of a used column is counted,
+// and dropped rows are grouped by the set of columns they miss.
+func TestMissingPatterns(t *testing.T) {
+	in := "y,a,b,note\n1,,2,x\n,,,\n2,1,,\n1,,3,\n2,5,6,\n1,7,8,\nNA,1,1,\n"
+	d, err := Read(strings.NewReader(in), "t.csv", Options{Outcome: "y", Predictors: []string{"a", "b"}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := &MissingTable{Columns: []string{"y", "a", "b"}, ByColumn: []int{2, 3, 2},
+		Patterns: []MissingPattern{
+			{Missing: []bool{false, true, false}, Rows: 2},
+			{Missing: []bool{false, false, true}, Rows: 1},
+			{Missing: []bool{true, false, false}, Rows: 1},
+			{Missing: []bool{true, true, true}, Rows: 1},
+		}}
+	if !reflect.DeepEqual(d.Missing, want) {
+		t.Errorf("got  %+v\nwant %+v", d.Missing, want)
+	}
+	if d.N != 2 || d.RowsDropped != 5 {
+		t.Errorf("N %d dropped %d", d.N, d.RowsDropped)
 	}
 }
 

@@ -39,6 +39,9 @@ type Dataset struct {
 	// counted once, under the first used column (outcome, predictors,
 	// weights, offset, cluster) that is missing; entries follow that order.
 	Dropped []DropCount
+	// Missing counts the missing values of the used columns: per column
+	// (every missing cell, not only the first of its row) and per pattern.
+	Missing *MissingTable
 	Counts  []float64 // per category: kept rows (sum of weights when weighted)
 	Lines   []int     // kept rows: 1-based line number in the file
 	// Unobserved lists declared levels that no kept row has. Reading does
@@ -50,6 +53,21 @@ type Dataset struct {
 	// RowsOutside is the number of rows the subset conditions dropped
 	// (included in RowsDropped).
 	RowsOutside int
+}
+
+// MissingTable is the missing-value pattern of the used columns (outcome,
+// predictors, weights, offset, cluster, in that order).
+type MissingTable struct {
+	Columns  []string
+	ByColumn []int            // rows with a missing value in each column
+	Patterns []MissingPattern // rows dropped, by the set of columns they miss
+}
+
+// MissingPattern is a set of columns missing together and how many rows
+// miss exactly those.
+type MissingPattern struct {
+	Missing []bool // per column of the table
+	Rows    int
 }
 
 // NObs returns the number of observations: the sum of the weights, or N

@@ -41,7 +41,9 @@ func (r *reader) rows() (*Dataset, error) {
 		}
 		levelSeen[col] = make([]float64, len(lv))
 	}
-	zeroWeight := 0 // rows with frequency weight 0 stand for no observation
+	zeroWeight := 0              // rows with frequency weight 0 stand for no observation
+	patterns := map[string]int{} // which used columns a row misses: 'x' missing, '.' present
+	pat := make([]byte, len(r.cols))
 	xs := make([]float64, d.K)
 	for {
 		rec, err := r.cr.Read()
@@ -71,6 +73,9 @@ func (r *reader) rows() (*Dataset, error) {
 			continue
 		}
 		miss := -1
+		for i := range pat {
+			pat[i] = '.'
+		}
 		y, code, w, off, cl := 0, int64(0), 1.0, 0.0, ""
 		for ci, c := range r.cols {
 			if c.role == roleSubset {
@@ -85,6 +90,7 @@ func (r *reader) rows() (*Dataset, error) {
 				if miss < 0 {
 					miss = ci
 				}
+				pat[ci] = 'x'
 				continue
 			}
 			var msg string
@@ -125,6 +131,7 @@ func (r *reader) rows() (*Dataset, error) {
 		}
 		if miss >= 0 {
 			drops[miss]++
+			patterns[string(pat)]++
 			continue
 		}
 		if w == 0 {
@@ -161,6 +168,7 @@ func (r *reader) rows() (*Dataset, error) {
 			d.RowsDropped += n
 		}
 	}
+	d.Missing = missingPatterns(r.cols, patterns)
 	if zeroWeight > 0 {
 		d.Dropped = append(d.Dropped, DropCount{Column: opt.Weights + " = 0", Rows: zeroWeight})
 		d.RowsDropped += zeroWeight
@@ -249,4 +257,41 @@ func (r *reader) tally(d *Dataset) error {
 		return r.fail(0, d.Outcome, "only one category (%s) among the %d kept rows; at least two are needed", quoteCell(last), d.N)
 	}
 	return nil
+}
+
+// missingPatterns lists the used columns and, for every combination of
+// them that rows miss together, the number of such rows: most frequent
+// first, ties in the order of the pattern text.
+func missingPatterns(cols []usedCol, patterns map[string]int) *MissingTable {
+	t := &MissingTable{}
+	var idx []int // positions of the columns the table shows (subset columns are not data of the fits)
+	for i, c := range cols {
+		if c.role == roleSubset {
+			continue
+		}
+		idx = append(idx, i)
+		t.Columns = append(t.Columns, c.name)
+	}
+	t.ByColumn = make([]int, len(idx))
+	keys := make([]string, 0, len(patterns))
+	for k := range patterns {
+		keys = append(keys, k)
+	}
+	slices.SortFunc(keys, func(a, b string) int {
+		if patterns[a] != patterns[b] {
+			return patterns[b] - patterns[a]
+		}
+		return strings.Compare(a, b)
+	})
+	for _, k := range keys {
+		mp := MissingPattern{Rows: patterns[k], Missing: make([]bool, len(idx))}
+		for j, i := range idx {
+			if k[i] == 'x' {
+				mp.Missing[j] = true
+				t.ByColumn[j] += patterns[k]
+			}
+		}
+		t.Patterns = append(t.Patterns, mp)
+	}
+	return t
 }
