@@ -7,60 +7,97 @@ import (
 
 	"ordplan/render/numfmt"
 	"ordplan/runner"
-	"ordplan/runner/fit"
+	"ordplan/runner/data"
 )
 
-// descriptive is the summary of one predictor in each outcome category
-// and over all rows: mean and standard deviation, or, for a 0/1
-// predictor, the count and share of rows with 1.
+// descriptive is the summary of one predictor (or one level of a
+// categorical predictor) in each outcome category and over all rows: mean
+// and standard deviation, or, for a 0/1 predictor and a level, the count
+// and share of rows with 1 (with that level).
 type descriptive struct {
-	Predictor string
-	Binary    bool
-	N         []float64 // per category, then all: observations (sum of weights)
-	Mean      []float64 // per category, then all (the share of 1s for a 0/1 predictor)
-	SD        []float64 // per category, then all (divisor: observations - 1)
-	Ones      []float64 // 0/1 predictor: observations with 1
+	Label  string
+	Counts bool      // show counts and shares
+	N      []float64 // per category, then all: observations (sum of weights)
+	Mean   []float64 // per category, then all (the share for counts)
+	SD     []float64 // per category, then all (divisor: observations - 1)
+	Ones   []float64 // counts: observations with 1 (with the level)
 }
 
-// describe summarizes every predictor of d by outcome category, weighted
-// by the frequency weights.
-func describe(d *fit.Data) []descriptive {
-	K, J, n := len(d.Predictors), d.J, d.N()
+// describe summarizes every raw predictor column of ds by outcome
+// category, weighted by the frequency weights. levels gives the levels of
+// a categorical column (its cells hold the level index), nil for a
+// numeric one.
+func describe(ds *data.Dataset, levels [][]string) []descriptive {
+	K, J := ds.K, len(ds.Levels)
 	var out []descriptive
-	for k := 0; k < K; k++ {
-		ds := descriptive{Predictor: d.Predictors[k], Binary: true, N: make([]float64, J+1), Mean: make([]float64, J+1),
+	one := func(label string, counts bool, value func(i int) float64) {
+		s := descriptive{Label: label, Counts: counts, N: make([]float64, J+1), Mean: make([]float64, J+1),
 			SD: make([]float64, J+1), Ones: make([]float64, J+1)}
 		m2 := make([]float64, J+1)
-		for i := 0; i < n; i++ {
+		for i := 0; i < ds.N; i++ {
 			w := 1.0
-			if d.Weights != nil {
-				w = d.Weights[i]
+			if ds.Weights != nil {
+				w = ds.Weights[i]
 			}
 			if w == 0 {
 				continue
 			}
-			x := d.X[i*K+k]
-			if x != 0 && x != 1 {
-				ds.Binary = false
-			}
-			for _, c := range []int{d.Y[i], J} {
+			x := value(i)
+			for _, c := range []int{ds.Y[i], J} {
 				// Weighted running mean and sum of squares (West's update).
-				ds.N[c] += w
-				delta := x - ds.Mean[c]
-				ds.Mean[c] += w / ds.N[c] * delta
-				m2[c] += w * delta * (x - ds.Mean[c])
+				s.N[c] += w
+				delta := x - s.Mean[c]
+				s.Mean[c] += w / s.N[c] * delta
+				m2[c] += w * delta * (x - s.Mean[c])
 				if x == 1 {
-					ds.Ones[c] += w
+					s.Ones[c] += w
 				}
 			}
 		}
 		for c := range m2 {
-			ds.SD[c] = math.NaN()
-			if ds.N[c] > 1 {
-				ds.SD[c] = math.Sqrt(m2[c] / (ds.N[c] - 1))
+			s.SD[c] = math.NaN()
+			if s.N[c] > 1 {
+				s.SD[c] = math.Sqrt(m2[c] / (s.N[c] - 1))
 			}
 		}
-		out = append(out, ds)
+		out = append(out, s)
+	}
+	for k := 0; k < K; k++ {
+		name := ds.Predictors[k]
+		if k < len(levels) && levels[k] != nil {
+			for l, lv := range levels[k] {
+				one(name+" = "+lv, true, func(i int) float64 {
+					if int(ds.X[i*K+k]) == l {
+						return 1
+					}
+					return 0
+				})
+			}
+			continue
+		}
+		binary := true
+		for i := 0; i < ds.N; i++ {
+			if x := ds.X[i*K+k]; x != 0 && x != 1 {
+				binary = false
+				break
+			}
+		}
+		one(name, binary, func(i int) float64 { return ds.X[i*K+k] })
+	}
+	return out
+}
+
+// sourceLevels lists the levels of each raw predictor column of an
+// outcome (nil for a numeric one).
+func sourceLevels(or *runner.OutcomeResult) [][]string {
+	if or.Design == nil {
+		return nil
+	}
+	out := make([][]string, len(or.Design.Sources))
+	for i, s := range or.Design.Sources {
+		if s.Cat != nil {
+			out[i] = s.Cat.Levels
+		}
 	}
 	return out
 }
@@ -68,14 +105,14 @@ func describe(d *fit.Data) []descriptive {
 // writeDescriptives writes the predictors by outcome category and the
 // missing-value pattern of the used columns.
 func writeDescriptives(d *doc, or *runner.OutcomeResult) {
-	ds := describe(or.FitData)
+	ds := describe(or.Data, sourceLevels(or))
 	if len(ds) > 0 {
 		lv := or.Data.Levels
 		weighted := ""
-		if or.FitData.Weights != nil {
+		if or.Data.Weights != nil {
 			weighted = " Counts, means and SDs are weighted by the frequency weights."
 		}
-		d.p("Each predictor in each outcome category: mean (SD) for a numeric predictor; for a 0/1 predictor, the number of observations with 1 and their share of the category.%s", weighted)
+		d.p("Each predictor in each outcome category: mean (SD) for a numeric predictor; for a 0/1 predictor and for each level of a categorical one, the number of observations with 1 (with that level) and their share of the category.%s", weighted)
 		head := []string{"Predictor"}
 		for _, l := range lv {
 			head = append(head, l)
@@ -83,9 +120,9 @@ func writeDescriptives(d *doc, or *runner.OutcomeResult) {
 		head = append(head, "All")
 		var rows [][]string
 		for _, s := range ds {
-			row := []string{s.Predictor}
+			row := []string{s.Label}
 			for c := range s.N {
-				if s.Binary {
+				if s.Counts {
 					row = append(row, fmt.Sprintf("%s (%s%%)", numfmt.Num(s.Ones[c]), numfmt.Fixed(100*s.Mean[c], 1)))
 				} else {
 					row = append(row, fmt.Sprintf("%s (%s)", numfmt.Fixed(s.Mean[c], 3), numfmt.Fixed(s.SD[c], 3)))
