@@ -94,6 +94,7 @@ type canonTests struct {
 type canonReport struct {
 	Title           string  `json:"title"`
 	FocusPredictor  string  `json:"focus_predictor"`
+	PanelsBy        string  `json:"panels_by,omitempty"`
 	ConfidenceLevel float64 `json:"confidence_level"`
 	Timestamp       bool    `json:"timestamp"`
 }
@@ -136,6 +137,7 @@ func (p *Plan) canonical() canonPlan {
 		Report: canonReport{
 			Title:           p.Report.Title,
 			FocusPredictor:  p.Report.FocusPredictor,
+			PanelsBy:        p.Report.PanelsBy,
 			ConfidenceLevel: p.Report.ConfidenceLevel,
 			Timestamp:       p.Report.Timestamp,
 		},

@@ -27,6 +27,11 @@ func (d *decoder) check(p *Plan) {
 	if d.predictorsKnown(p) {
 		d.checkInference(p)
 	}
+	if b := p.Report.PanelsBy; b != "" && d.clean("report.panels_by") && p.categorical(b) == nil {
+		d.errAt("report.panels_by", "%s is not a column declared under categorical", quote(b))
+	} else if b != "" && b == p.Report.FocusPredictor {
+		d.errAt("report.panels_by", "%s is already the focus predictor; panels_by names another categorical column", quote(b))
+	}
 	if f := p.Report.FocusPredictor; d.given("report.focus_predictor") && d.predictorsKnown(p) && !slices.Contains(p.Predictors, f) && !slices.Contains(p.SourceColumns(), f) {
 		d.errAt("report.focus_predictor", "%s is not a predictor (%s)", quote(f), known(p.Predictors))
 	}

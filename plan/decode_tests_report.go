@@ -18,6 +18,7 @@ func (d *decoder) decodeReport(n *yaml.Node, r *Report) {
 	m := d.mapping(n, "report", reportKeys)
 	m.text("title", &r.Title)
 	m.name("focus_predictor", &r.FocusPredictor)
+	m.name("panels_by", &r.PanelsBy)
 	m.probability("confidence_level", &r.ConfidenceLevel)
 	m.boolean("timestamp", &r.Timestamp)
 }

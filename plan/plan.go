@@ -117,6 +117,7 @@ const (
 type Report struct {
 	Title           string  // defaults to Plan.Title
 	FocusPredictor  string  // x axis of the predicted-probability chart (default: first predictor)
+	PanelsBy        string  // a categorical column: one prediction panel per level (optional)
 	ConfidenceLevel float64 // default 0.95, in (0,1)
 	Timestamp       bool    // default false: no timestamps in the report
 }

@@ -305,7 +305,7 @@ func TestBadPlans(t *testing.T) {
 		{"seed negative", "", "seed: -3\n",
 			[]string{`seed: want a whole number from 0 to 18446744073709551615, got number -3`}},
 		{"report not a mapping", "", "report: [title]\n",
-			[]string{`bad.yaml:12:9: report: want a mapping with keys title, focus_predictor, confidence_level, timestamp; got a list`}},
+			[]string{`bad.yaml:12:9: report: want a mapping with keys title, focus_predictor, panels_by, confidence_level, timestamp; got a list`}},
 		{"control character", "predictors: [a, b, c]", `predictors: [a, "b\u0007", c]`,
 			[]string{`predictors[1]: contains the control or non-printable character U+0007`}},
 		{"not yaml", "predictors: [a, b, c]", "predictors: [a, b",

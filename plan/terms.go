@@ -280,7 +280,7 @@ func (d *decoder) checkTerms(p *Plan, terms []design.TermSpec, listKey string) {
 		if len(t.Interact) > 0 {
 			for _, c := range t.Interact {
 				if !names[c] {
-					d.errAt(t.Key+".interact", "%s is not a term listed before this interaction in %s (interactions name earlier terms, e.g. interact: [treat, age])", quote(c), listKey)
+					d.errAt(d.itemKey(t.Key+".interact", c), "%s is not a term listed before this interaction in %s (interactions name earlier terms, e.g. interact: [treat, age])", quote(c), listKey)
 				}
 			}
 		} else if p.categorical(t.Source) != nil && !t.Transform.Empty() {

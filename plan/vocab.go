@@ -43,7 +43,7 @@ var (
 	selectKeys  = []string{"method", "alpha", "test"}
 	groupKeys   = []string{"name", "predictors"}
 	testsKeys   = []string{"parallel_lines", "alpha"}
-	reportKeys  = []string{"title", "focus_predictor", "confidence_level", "timestamp"}
+	reportKeys  = []string{"title", "focus_predictor", "panels_by", "confidence_level", "timestamp"}
 	rejectKeys  = []string{"test", "alpha"}
 	chooseKeys  = []string{"by", "margin"}
 )

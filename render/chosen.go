@@ -3,6 +3,9 @@ package render
 import (
 	"fmt"
 	"math"
+	"slices"
+	"sort"
+	"strings"
 
 	"gonum.org/v1/gonum/stat/distuv"
 
@@ -17,14 +20,59 @@ func writeChosen(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	d.h(3, "The chosen model: "+or.Chosen.ID)
 	d.p("Log-likelihood %s, %d parameters, AIC %s, BIC %s, %s observations. Linear predictor of boundary m: L_m = cut_m - x'b_m; a positive slope moves the outcome towards higher categories.",
 		numfmt.Fixed(res.LogLik, 4), res.NParams, numfmt.Fixed(res.AIC, 3), numfmt.Fixed(res.BIC, 3), numfmt.Num(res.NObs))
+	grouped := or.Design != nil && !or.Design.Trivial()
 	var rows [][]string
-	for i, n := range res.ParamNames {
+	for _, i := range paramOrder(res.ParamNames, or, grouped) {
+		n := res.ParamNames[i]
 		est, se := res.Estimates[i], res.StdErrors[i]
 		zz := est / se
-		rows = append(rows, []string{ParamLabel(res, n), numfmt.Est(est), numfmt.Est(se), numfmt.Z(zz),
-			numfmt.PValue(2 * distuv.UnitNormal.Survival(math.Abs(zz))), numfmt.Est(est - z*se), numfmt.Est(est + z*se)})
+		row := []string{ParamLabel(res, n), numfmt.Est(est), numfmt.Est(se), numfmt.Z(zz),
+			numfmt.PValue(2 * distuv.UnitNormal.Survival(math.Abs(zz))), numfmt.Est(est - z*se), numfmt.Est(est + z*se)}
+		if grouped {
+			row = append([]string{termOfParam(or, n)}, row...)
+		}
+		rows = append(rows, row)
 	}
-	d.captioned("Estimates of the chosen model, "+or.Chosen.ID).table([]string{"Parameter", "Estimate", "Std. error", "z", "p", pct(level) + " low", pct(level) + " high"}, rows)
+	head := []string{"Parameter", "Estimate", "Std. error", "z", "p", pct(level) + " low", pct(level) + " high"}
+	if grouped {
+		head = append([]string{"Term"}, head...)
+	}
+	d.captioned("Estimates of the chosen model, "+or.Chosen.ID).table(head, rows)
+}
+
+// termOfParam names the term a parameter belongs to: the term of its
+// design column, or "" for thresholds and common factors.
+func termOfParam(or *runner.OutcomeResult, name string) string {
+	col, _, _ := strings.Cut(name, "[")
+	for _, t := range or.Terms {
+		if slices.Contains(t.Columns, col) {
+			return t.Name
+		}
+	}
+	return ""
+}
+
+// paramOrder lists the parameters with those of one term together, in
+// the order of the terms (thresholds and others first, as fitted).
+func paramOrder(names []string, or *runner.OutcomeResult, grouped bool) []int {
+	idx := make([]int, len(names))
+	for i := range idx {
+		idx[i] = i
+	}
+	if !grouped {
+		return idx
+	}
+	rank := func(i int) int {
+		t := termOfParam(or, names[i])
+		for k, term := range or.Terms {
+			if term.Name == t {
+				return k + 1
+			}
+		}
+		return 0
+	}
+	sort.SliceStable(idx, func(a, b int) bool { return rank(idx[a]) < rank(idx[b]) })
+	return idx
 }
 
 // pct writes a confidence level as a percentage: "95%".

@@ -1,11 +1,6 @@
 package render
 
 import (
-	"fmt"
-	"math"
-	"strings"
-
-	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/fit"
 )
@@ -22,112 +17,37 @@ func focusName(r *runner.Result) string {
 	return ""
 }
 
-// profile is where predictions are made: the focus predictor varies, every
-// other predictor (and the offset, if any) stays at its mean over the
-// rows used, weighted by the frequency weights.
+// profile is where predictions are made: the focus column varies, every
+// other column the predictors read stays at its mean over the rows used
+// (weighted by the frequency weights) or, if categorical, at a level;
+// the raw rows go through the outcome's design.
 type profile struct {
-	focus    string
-	k        int // column of the focus predictor
-	binary   bool
-	min, max float64
-	means    []float64
-	offset   float64
-	hasOff   bool
+	*runner.Profile
+	focus  string
+	binary bool // draw bars: a 0/1 or categorical focus
 }
 
-// newProfile describes the data of the fit around predictor focus.
-func newProfile(d *fit.Data, focus string) (*profile, error) {
-	k := -1
-	for i, p := range d.Predictors {
-		if p == focus {
-			k = i
-		}
+// newProfile describes the data of the outcome around predictor focus,
+// categorical columns in fixed held at the given levels.
+func newProfile(or *runner.OutcomeResult, focus string, fixed map[string]string) (*profile, error) {
+	p, err := or.NewProfile(focus, fixed)
+	if err != nil {
+		return nil, err
 	}
-	if k < 0 {
-		return nil, fmt.Errorf("the focus predictor %q is not a predictor of the model", focus)
-	}
-	K, n := len(d.Predictors), d.N()
-	pf := &profile{focus: focus, k: k, binary: true, min: math.Inf(1), max: math.Inf(-1), means: make([]float64, K), hasOff: d.Offset != nil}
-	tot := 0.0
-	for i := 0; i < n; i++ {
-		w := 1.0
-		if d.Weights != nil {
-			w = d.Weights[i]
-		}
-		tot += w
-		for j := 0; j < K; j++ {
-			pf.means[j] += w * d.X[i*K+j]
-		}
-		if pf.hasOff {
-			pf.offset += w * d.Offset[i]
-		}
-		v := d.X[i*K+k]
-		pf.min, pf.max = math.Min(pf.min, v), math.Max(pf.max, v)
-		if v != 0 && v != 1 {
-			pf.binary = false
-		}
-	}
-	if n == 0 || tot <= 0 {
-		return nil, fmt.Errorf("no observations to average over")
-	}
-	for j := range pf.means {
-		pf.means[j] /= tot
-	}
-	pf.offset /= tot
-	return pf, nil
+	return &profile{Profile: p, focus: p.Focus, binary: p.Binary || p.Categorical}, nil
 }
 
-// grid returns the focus values: 0 and 1 for a 0/1 predictor, else
-// evenly spaced values (as many as points) from the smallest to the
-// largest in the data.
-func (pf *profile) grid(points int) []float64 {
-	switch {
-	case pf.binary:
-		return []float64{0, 1}
-	case pf.min == pf.max || points < 2:
-		return []float64{pf.min}
-	}
-	out := make([]float64, points)
-	for i := range out {
-		out[i] = pf.min + (pf.max-pf.min)*float64(i)/float64(points-1)
-	}
-	out[points-1] = pf.max
-	return out
-}
+// grid returns the focus values.
+func (pf *profile) grid(points int) []float64 { return pf.Grid(points) }
 
 // predict returns the predicted probabilities at the focus values.
 func (pf *profile) predict(res *fit.Result, xs []float64) (*fit.Prediction, error) {
-	K := len(pf.means)
-	X := make([]float64, 0, len(xs)*K)
-	var off []float64
-	for _, x := range xs {
-		row := append([]float64(nil), pf.means...)
-		row[pf.k] = x
-		X = append(X, row...)
-		if pf.hasOff {
-			off = append(off, pf.offset)
-		}
+	X, off, err := pf.Rows(xs)
+	if err != nil {
+		return nil, err
 	}
 	return res.Predict(X, off)
 }
 
 // heldAt says where the other predictors are held.
-func (pf *profile) heldAt(d *fit.Data) string {
-	var parts []string
-	for j, p := range d.Predictors {
-		if j != pf.k {
-			parts = append(parts, fmt.Sprintf("%s %s", p, numfmt.Num(pf.means[j])))
-		}
-	}
-	s := "no other predictor"
-	if len(parts) > 0 {
-		s = "the other predictors at their means over the rows used (" + strings.Join(parts, ", ") + ")"
-	}
-	if pf.hasOff {
-		s += fmt.Sprintf(" and the offset at its mean (%s)", numfmt.Num(pf.offset))
-	}
-	if d.Weights != nil {
-		s += ", means weighted by the frequency weights"
-	}
-	return s
-}
+func (pf *profile) heldAt() string { return pf.HeldAt() }

@@ -35,6 +35,9 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			if me.Discrete {
 				change = "0 to 1"
 			}
+			if me.Change != "" {
+				change = me.Change
+			}
 			rows = append(rows, []string{me.Predictor, change, me.Category, numfmt.Est(me.Effect), numfmt.Est(me.SE),
 				numfmt.Z(me.Z), numfmt.PValue(me.P), numfmt.Est(me.Low), numfmt.Est(me.High)})
 		}
@@ -42,12 +45,28 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	}
 }
 
+// atList writes the raw row of marginal effects at one point: each
+// column the predictors read, categorical ones at a level.
 func atList(or *runner.OutcomeResult, x []float64) string {
 	var parts []string
-	for k, p := range or.FitData.Predictors {
-		if k < len(x) {
-			parts = append(parts, fmt.Sprintf("%s = %s", p, numfmt.Num(x[k])))
+	names := or.FitData.Predictors
+	var cat []bool
+	if or.Design != nil {
+		names = nil
+		for _, s := range or.Design.Sources {
+			names = append(names, s.Name)
+			cat = append(cat, s.Cat != nil)
 		}
+	}
+	for k, p := range names {
+		if k >= len(x) {
+			continue
+		}
+		if k < len(cat) && cat[k] {
+			parts = append(parts, fmt.Sprintf("%s = %s", p, or.Design.Sources[k].Cat.Levels[int(x[k])]))
+			continue
+		}
+		parts = append(parts, fmt.Sprintf("%s = %s", p, numfmt.Num(x[k])))
 	}
 	return strings.Join(parts, ", ")
 }

@@ -19,9 +19,25 @@ const (
 // writePredictions writes the predicted category probabilities of the
 // chosen model over the focus predictor, as a table and a chart.
 func writePredictions(d *doc, r *runner.Result, or *runner.OutcomeResult) {
-	res := or.Chosen.Result
 	d.h(3, "Predicted probabilities")
-	pf, err := newProfile(or.FitData, focusName(r))
+	by := r.Plan.Report.PanelsBy
+	if by == "" || or.Design == nil || or.Design.Source(by) < 0 {
+		writePredictionPanel(d, r, or, nil, "")
+		return
+	}
+	levels, _ := or.Design.Coded(or.Design.Source(by))
+	d.p("One panel per level of `%s` (report.panels_by), so that the predictions can be compared across its levels, as an interaction needs.", by)
+	for _, l := range levels {
+		d.h(4, fmt.Sprintf("%s = %s", by, l))
+		writePredictionPanel(d, r, or, map[string]string{by: l}, fmt.Sprintf("%s = %s", by, l))
+	}
+}
+
+// writePredictionPanel writes the predictions with the categorical
+// columns in fixed held at the given levels (label names them, or "").
+func writePredictionPanel(d *doc, r *runner.Result, or *runner.OutcomeResult, fixed map[string]string, label string) {
+	res := or.Chosen.Result
+	pf, err := newProfile(or, focusName(r), fixed)
 	if err != nil {
 		d.p("Not computed: %s.", err)
 		return
@@ -33,13 +49,15 @@ func writePredictions(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		return
 	}
 	span := fmt.Sprintf("goes over %d evenly spaced values from its smallest to its largest value in the data", len(xs))
-	if pf.binary {
+	if pf.Categorical {
+		span = "goes over its levels"
+	} else if pf.binary {
 		span = "is 0 and 1"
 	} else if len(xs) == 1 {
 		span = "is at its only value in the data"
 	}
 	d.p("Probability of each category under the chosen model when `%s` %s, with %s. Standard errors, in brackets, are delta-method approximations from the model's covariance matrix.",
-		pf.focus, span, pf.heldAt(or.FitData))
+		pf.focus, span, pf.heldAt())
 	head := []string{pf.focus}
 	for _, l := range res.Levels {
 		head = append(head, "P("+l+")")
@@ -48,7 +66,7 @@ func writePredictions(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	var rows [][]string
 	neg := 0
 	for i, x := range xs {
-		row := []string{numfmt.Num(x)}
+		row := []string{pf.Label(x)}
 		for j := 0; j < pred.J; j++ {
 			row = append(row, fmt.Sprintf("%s (%s)", numfmt.Prob(pred.Prob[i*pred.J+j]), numfmt.Prob(pred.SE[i*pred.J+j])))
 		}
@@ -65,7 +83,7 @@ func writePredictions(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	} else {
 		d.p("**Warning:** at %d of these %d values of `%s` the model predicts a negative probability for some category (its cumulative probabilities cross there). Those rows are not valid probability distributions; read the model with care in that region.", neg, len(xs), pf.focus)
 	}
-	c, err := predictionChart(d, or, pf)
+	c, err := predictionChart(d, or, pf, label)
 	if err != nil {
 		d.p("The chart of these predictions was not drawn: %s.", err)
 		return
@@ -78,7 +96,7 @@ var predictionGrid = opts.Grid{Left: "6%", Right: "8%", Top: "70", Bottom: "70"}
 // predictionChart draws the predicted probabilities against the focus
 // predictor: stacked bars at 0 and 1 for a 0/1 predictor, else one line
 // per category over a finer grid than the table's.
-func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile) (*chart, error) {
+func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string) (*chart, error) {
 	res := or.Chosen.Result
 	xs := pf.grid(chartPoints)
 	pred, err := pf.predict(res, xs)
@@ -94,7 +112,14 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile) (*chart, err
 	id := d.chartID()
 	title := "Predicted probabilities by " + pf.focus
 	sub := or.Chosen.ID + "; other predictors at their means"
+	if label != "" {
+		title += " (" + label + ")"
+		sub = or.Chosen.ID + "; " + label + ", other predictors at their means"
+	}
 	caption := fmt.Sprintf("Predicted probability of each category of %s under %s as %s varies, other predictors at their means.", or.Outcome.Column, or.Chosen.ID, pf.focus)
+	if label != "" {
+		caption = fmt.Sprintf("Predicted probability of each category of %s under %s as %s varies, with %s, other predictors at their means.", or.Outcome.Column, or.Chosen.ID, pf.focus, label)
+	}
 	if neg > 0 {
 		caption += fmt.Sprintf(" At %d of the %d points drawn some probability is negative.", neg, len(xs))
 	}
@@ -112,7 +137,11 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile) (*chart, err
 		b.SetGlobalOptions(append(baseOpts(id, title, sub, 420, predictionGrid),
 			charts.WithXAxisOpts(opts.XAxis{Name: pf.focus, Type: "category"}),
 			charts.WithYAxisOpts(opts.YAxis{Name: "probability", Type: "value", Max: 1}))...)
-		b.SetXAxis([]string{"0", "1"})
+		var labels []string
+		for _, x := range xs {
+			labels = append(labels, pf.Label(x))
+		}
+		b.SetXAxis(labels)
 		for j, l := range res.Levels {
 			data := make([]opts.BarData, len(xs))
 			for i, p := range probs(j) {

@@ -10,13 +10,22 @@ import (
 
 	"ordplan/plan"
 	"ordplan/runner"
+	"ordplan/runner/data"
+	"ordplan/runner/design"
 	"ordplan/runner/fit"
 )
 
 func TestProfileGrid(t *testing.T) {
-	d := &fit.Data{Predictors: []string{"b", "c", "k"}, Y: []int{0, 1, 1, 0}, J: 2,
+	ds := &data.Dataset{Predictors: []string{"b", "c", "k"}, Y: []int{0, 1, 1, 0}, N: 4, K: 3,
 		X: []float64{0, 2, 5, 1, 8, 5, 1, 2, 5, 0, 4, 5}, Weights: []float64{1, 1, 1, 3}}
-	pf, err := newProfile(d, "b")
+	spec := design.Spec{Sources: []design.Source{{Name: "b"}, {Name: "c"}, {Name: "k"}},
+		Terms: []design.TermSpec{{Name: "b", Source: "b"}, {Name: "c", Source: "c"}, {Name: "k", Source: "k"}}}
+	dz, err := design.Build(spec, ds.X, ds.N, ds.Weights, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	or := &runner.OutcomeResult{Data: ds, Design: dz}
+	pf, err := newProfile(or, "b", nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -24,18 +33,19 @@ func TestProfileGrid(t *testing.T) {
 		t.Errorf("0/1 predictor: binary %v, grid %v", pf.binary, pf.grid(7))
 	}
 	// Weighted means: b (0+1+1+0)/6 = 1/3, c (2+8+2+3*4)/6 = 4.
-	if math.Abs(pf.means[0]-2.0/6) > 1e-15 || pf.means[1] != 4 || pf.means[2] != 5 {
-		t.Errorf("means %v", pf.means)
+	pf, _ = newProfile(or, "c", nil)
+	X, _, _ := pf.Rows([]float64{7})
+	if math.Abs(X[0]-2.0/6) > 1e-15 || X[1] != 7 || X[2] != 5 {
+		t.Errorf("row at c = 7: %v", X)
 	}
-	pf, _ = newProfile(d, "c")
 	if pf.binary || fmt.Sprint(pf.grid(7)) != "[2 3 4 5 6 7 8]" {
 		t.Errorf("continuous predictor: binary %v, grid %v", pf.binary, pf.grid(7))
 	}
-	pf, _ = newProfile(d, "k")
+	pf, _ = newProfile(or, "k", nil)
 	if fmt.Sprint(pf.grid(7)) != "[5]" {
 		t.Errorf("constant predictor: grid %v", pf.grid(7))
 	}
-	if _, err := newProfile(d, "zz"); err == nil {
+	if _, err := newProfile(or, "zz", nil); err == nil {
 		t.Error("unknown focus predictor accepted")
 	}
 }

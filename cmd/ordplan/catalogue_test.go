@@ -412,6 +412,7 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`allzero.csv: all 3 data rows were dropped for missing values or zero weight (w = 0: 3)`}},
 	}
 	items = append(items, registrationItems()...)
+	items = append(items, termItems()...)
 	return items
 }
 
@@ -484,7 +485,7 @@ func TestBadInputCatalogueIsDocumented(t *testing.T) {
 		t.Fatal(err)
 	}
 	inDoc := map[string]bool{}
-	for _, m := range regexp.MustCompile(`(?m)^\| ([PDMWRV][0-9]+) \|`).FindAllStringSubmatch(string(doc), -1) {
+	for _, m := range regexp.MustCompile(`(?m)^\| ([PDMWRVT][0-9]+) \|`).FindAllStringSubmatch(string(doc), -1) {
 		inDoc[m[1]] = true
 	}
 	tested := map[string]bool{}

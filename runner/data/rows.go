@@ -181,7 +181,13 @@ func (r *reader) rows() (*Dataset, error) {
 		}
 	}
 	if d.N == 0 && d.RowsOutside == d.RowsRead {
-		return nil, r.fail(0, "", "the subset keeps no rows: all %d data rows fail its conditions (%s)", d.RowsRead, dropList(d.Dropped))
+		first := ""
+		for i, n := range subsetDrops {
+			if n > 0 && first == "" {
+				first = opt.Keep[i].Column
+			}
+		}
+		return nil, r.fail(0, first, "the subset keeps no rows: all %d data rows fail its conditions (%s)", d.RowsRead, dropList(d.Dropped))
 	}
 	for _, col := range opt.Predictors {
 		if seen := levelSeen[col]; seen != nil {

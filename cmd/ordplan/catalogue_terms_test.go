@@ -1,0 +1,110 @@
+package main
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// termsPlan is the plan the term items vary: a categorical predictor and a
+// numeric one, on cat.csv.
+const termsPlan = `version: 1
+data: {file: cat.csv}
+outcomes: [{column: y}]
+categorical:
+  site: {levels: [north, east, south]}
+predictors: [site, x]
+models: {approaches: [cumulative], levels: [parallel]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: aic}
+`
+
+func termsEdit(pairs ...string) string {
+	s := termsPlan
+	for i := 0; i+1 < len(pairs); i += 2 {
+		if !strings.Contains(s, pairs[i]) {
+			panic("catalogue: " + pairs[i] + " is not in the terms plan")
+		}
+		s = strings.Replace(s, pairs[i], pairs[i+1], 1)
+	}
+	return s
+}
+
+// writeTermsData writes cat.csv (60 rows, seeded): y in 1..3, site in
+// north/east/south, x > 0 except one negative value on line 7; west.csv is
+// the same with one row of an undeclared level "west" on line 5.
+func writeTermsData(t *testing.T, dir, _ string) {
+	t.Helper()
+	rng := rand.New(rand.NewPCG(20261202, 15))
+	var b, w strings.Builder
+	b.WriteString("y,site,x\n")
+	w.WriteString("y,site,x\n")
+	sites := []string{"north", "east", "south"}
+	for i := 0; i < 60; i++ {
+		site := sites[i%3]
+		x := 0.5 + 3*rng.Float64()
+		if i == 5 {
+			x = -0.5
+		}
+		u := rng.Float64()
+		z := 0.8*float64(i%3) - 0.6*x + math.Log(u/(1-u))
+		y := 1
+		if z > -1.5 {
+			y = 2
+		}
+		if z > 0 {
+			y = 3
+		}
+		fmt.Fprintf(&b, "%d,%s,%.3f\n", y, site, x)
+		if i == 3 {
+			site = "west"
+		}
+		fmt.Fprintf(&w, "%d,%s,%.3f\n", y, site, x)
+	}
+	for name, body := range map[string]string{"cat.csv": b.String(), "west.csv": w.String()} {
+		if err := os.WriteFile(filepath.Join(dir, name), []byte(body), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+}
+
+// termItems are the catalogue's items on predictor terms: categorical
+// columns, transformations, interactions and subsets.
+func termItems() []badInput {
+	return []badInput{
+		{id: "T1", name: "level not declared", args: []string{"run"}, setup: writeTermsData,
+			plan: termsEdit("file: cat.csv", "file: west.csv"), code: 1,
+			want: []string{`west.csv:5: column "site": value "west" is not one of the declared levels of this categorical predictor: "north", "east", "south"`, `plan T1.yaml, outcome "y", plan key categorical.site`}},
+		{id: "T2", name: "text column not declared categorical", args: []string{"run"}, setup: writeTermsData,
+			plan: termsEdit("categorical:\n  site: {levels: [north, east, south]}\n", ""), code: 1,
+			want: []string{`cat.csv:2: column "site": value "north" is not a number; the column holds text: declare it categorical (under categorical: with its levels) to use it as a predictor`}},
+		{id: "T3", name: "log of a negative value", args: []string{"run"}, setup: writeTermsData,
+			plan: termsEdit("[site, x]", "[site, {column: x, log: true}]"), code: 1,
+			want: []string{`T3.yaml: predictors[1]: data line 7: column "x": log(-0.5) is undefined: the value is not positive (state a shift for zeros: log: {shift: 1})`}},
+		{id: "T4", name: "interaction with a term not in the plan", args: []string{"check"}, setup: writeTermsData,
+			plan: termsEdit("[site, x]", "[site, x, {interact: [site, age]}]"), code: 1,
+			want: []string{`predictors[2].interact[1]: "age" is not a term listed before this interaction in predictors`}},
+		{id: "T5", name: "subset that keeps no rows", args: []string{"run"}, setup: writeTermsData,
+			plan: termsEdit("predictors:", "subset:\n  - {column: x, greater_than: 1000}\npredictors:"), code: 1,
+			want: []string{`cat.csv: column "x": the subset keeps no rows: all 60 data rows fail its conditions (outside the subset x > 1000: 60)`, `plan key subset[0]`}},
+		{id: "T6", name: "declared level never observed", args: []string{"run"}, setup: writeTermsData,
+			plan: termsEdit("[north, east, south]", "[north, east, south, west]"), code: 1,
+			want: []string{`T6.yaml: predictors[0]: column "site": level "west" is declared but occurs in no row used; remove it from the levels, or set unobserved: drop to drop its column`}},
+		{id: "T7", name: "declared level never observed, dropped as the plan says", args: []string{"run"}, setup: writeTermsData,
+			plan: termsEdit("[north, east, south]}", "[north, east, south, west], unobserved: drop}"), code: 0,
+			check: func(t *testing.T, dir, out, errs string) {
+				rep, err := os.ReadFile(filepath.Join(dir, "T7-out", "report.md"))
+				if err != nil || !strings.Contains(string(rep), `Level "west" of site occurs in no row used; its column was dropped`) {
+					t.Errorf("the dropped level is not reported: %v", err)
+				}
+			}},
+		{id: "T8", name: "transformed categorical column", args: []string{"check"}, setup: writeTermsData,
+			plan: termsEdit("[site, x]", "[{column: site, log: true}, x]"), code: 1,
+			want: []string{`T8.yaml:6:14: predictors[0]: column "site" is declared categorical (categorical.site) and cannot be transformed`}},
+	}
+}

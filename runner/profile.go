@@ -1,0 +1,193 @@
+package runner
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"ordplan/render/numfmt"
+	"ordplan/runner/data"
+	"ordplan/runner/design"
+)
+
+// Profile is where the report predicts: one column the predictors read
+// (the focus) varies; every other column is held at its weighted mean
+// over the rows used, or, if categorical, at its reference level or at a
+// level the caller fixes. Each raw row is turned into design columns with
+// the constants frozen from the data, so transformations, splines and
+// interactions move with the focus.
+type Profile struct {
+	Focus       string
+	Categorical bool     // the focus is categorical: the grid is its levels
+	Levels      []string // coded levels of a categorical focus
+	Binary      bool     // a numeric focus taking only 0 and 1
+	Min, Max    float64
+	or          *OutcomeResult
+	s           int       // the focus column
+	base        []float64 // the raw row others are held at
+	offset      float64
+	hasOff      bool
+}
+
+// NewProfile describes predictions over column focus (a column the terms
+// read, or a term, whose first column is used), with the categorical
+// columns in fixed held at the given levels.
+func (or *OutcomeResult) NewProfile(focus string, fixed map[string]string) (*Profile, error) {
+	if err := or.ensureDesign(); err != nil {
+		return nil, err
+	}
+	dz := or.Design
+	s := dz.Source(focus)
+	if s < 0 {
+		if k := dz.Term(focus); k >= 0 {
+			s = dz.Source(dz.TermSources(k)[0])
+		}
+	}
+	if s < 0 {
+		return nil, fmt.Errorf("the focus predictor %q is not a predictor of the model", focus)
+	}
+	pf := &Profile{Focus: dz.Sources[s].Name, or: or, s: s, base: or.representative(nil, false), hasOff: or.Data.Offset != nil}
+	for col, level := range fixed {
+		c := dz.Source(col)
+		if c < 0 || dz.Level(c, level) < 0 {
+			return nil, fmt.Errorf("%q is not a level of the categorical column %q", level, col)
+		}
+		pf.base[c] = float64(dz.Level(c, level))
+	}
+	if pf.hasOff {
+		pf.offset = weightedMean(or.Data.Offset, or.Data.Weights)
+	}
+	if dz.Sources[s].Cat != nil {
+		pf.Categorical = true
+		pf.Levels, _ = dz.Coded(s)
+		return pf, nil
+	}
+	S := len(dz.Sources)
+	pf.Min, pf.Max, pf.Binary = math.Inf(1), math.Inf(-1), true
+	for i := 0; i < or.Data.N; i++ {
+		v := or.Data.X[i*S+s]
+		pf.Min, pf.Max = math.Min(pf.Min, v), math.Max(pf.Max, v)
+		if v != 0 && v != 1 {
+			pf.Binary = false
+		}
+	}
+	if or.Data.N == 0 {
+		return nil, fmt.Errorf("no observations to average over")
+	}
+	return pf, nil
+}
+
+// Grid gives the focus values: the level indices of a categorical focus,
+// 0 and 1 for a 0/1 focus, else evenly spaced values (as many as points)
+// from the smallest to the largest in the data.
+func (pf *Profile) Grid(points int) []float64 {
+	switch {
+	case pf.Categorical:
+		out := make([]float64, len(pf.Levels))
+		for i, l := range pf.Levels {
+			out[i] = float64(pf.or.Design.Level(pf.s, l))
+		}
+		return out
+	case pf.Binary:
+		return []float64{0, 1}
+	case pf.Min == pf.Max || points < 2:
+		return []float64{pf.Min}
+	}
+	out := make([]float64, points)
+	for i := range out {
+		out[i] = pf.Min + (pf.Max-pf.Min)*float64(i)/float64(points-1)
+	}
+	out[points-1] = pf.Max
+	return out
+}
+
+// Label writes one grid value: the level of a categorical focus, else the
+// number.
+func (pf *Profile) Label(x float64) string {
+	if pf.Categorical {
+		return pf.or.Design.Sources[pf.s].Cat.Levels[int(x)]
+	}
+	return numfmt.Num(x)
+}
+
+// Rows gives the design rows (and offsets, nil when none) at the focus
+// values xs.
+func (pf *Profile) Rows(xs []float64) ([]float64, []float64, error) {
+	dz := pf.or.Design
+	K := len(dz.Columns)
+	X := make([]float64, len(xs)*K)
+	var off []float64
+	raw := append([]float64(nil), pf.base...)
+	for i, x := range xs {
+		raw[pf.s] = x
+		if err := dz.Row(raw, X[i*K:(i+1)*K]); err != nil {
+			return nil, nil, err
+		}
+		if pf.hasOff {
+			off = append(off, pf.offset)
+		}
+	}
+	return X, off, nil
+}
+
+// HeldAt says where the other columns are held.
+func (pf *Profile) HeldAt() string {
+	dz := pf.or.Design
+	var parts []string
+	for s, src := range dz.Sources {
+		if s == pf.s {
+			continue
+		}
+		if src.Cat != nil {
+			parts = append(parts, fmt.Sprintf("%s %s", src.Name, src.Cat.Levels[int(pf.base[s])]))
+			continue
+		}
+		parts = append(parts, fmt.Sprintf("%s %s", src.Name, numfmt.Num(pf.base[s])))
+	}
+	s := "no other predictor"
+	if len(parts) > 0 {
+		s = "the other predictors at their means over the rows used (" + strings.Join(parts, ", ") + ")"
+		if pf.hasCategorical() {
+			s = "the other predictors at their means over the rows used, categorical ones at the level shown (" + strings.Join(parts, ", ") + ")"
+		}
+	}
+	if pf.hasOff {
+		s += fmt.Sprintf(" and the offset at its mean (%s)", numfmt.Num(pf.offset))
+	}
+	if pf.or.Data.Weights != nil {
+		s += ", means weighted by the frequency weights"
+	}
+	return s
+}
+
+func (pf *Profile) hasCategorical() bool {
+	for s, src := range pf.or.Design.Sources {
+		if s != pf.s && src.Cat != nil {
+			return true
+		}
+	}
+	return false
+}
+
+// ensureDesign gives an outcome assembled from fit input alone (numeric
+// columns as they are) its trivial design and raw data.
+func (or *OutcomeResult) ensureDesign() error {
+	if or.Design != nil {
+		return nil
+	}
+	d := or.FitData
+	var spec design.Spec
+	for _, c := range d.Predictors {
+		spec.Sources = append(spec.Sources, design.Source{Name: c})
+		spec.Terms = append(spec.Terms, design.TermSpec{Name: c, Source: c})
+	}
+	dz, err := design.Build(spec, d.X, d.N(), d.Weights, nil)
+	if err != nil {
+		return err
+	}
+	or.Design = dz
+	if or.Data == nil {
+		or.Data = &data.Dataset{Y: d.Y, X: d.X, N: d.N(), K: len(d.Predictors), Predictors: d.Predictors, Weights: d.Weights, Offset: d.Offset}
+	}
+	return nil
+}
