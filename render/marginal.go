@@ -12,18 +12,25 @@ import (
 // kind the plan asks for (average, at the means, at given values).
 func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	level, _ := confidence(r)
+	categorical := ""
+	if terms := or.TermDescriptions(); len(terms) > 0 {
+		categorical = " Effects are per column of the data, not per column of the model: for a categorical predictor (change \"reference to level\") the effect is the difference between the probabilities with the predictor at that level and at its reference level; for a numeric predictor that enters a transformation, polynomial, spline or interaction the derivative goes through every model column it enters."
+	}
 	for _, set := range or.Marginal {
 		switch set.Kind {
 		case "average":
 			d.h(3, "Average marginal effects")
 			d.p("How much the probability of each category changes with each predictor, averaged over the %d rows used%s with the other predictors as observed. For a 0/1 predictor (change \"0 to 1\") the effect is the difference between the probabilities with the predictor set to 1 and set to 0; for any other predictor (change \"per unit\") it is the derivative, the change per unit of the predictor. The effects of one predictor add up to zero over the categories. Standard errors by the delta method; intervals at %s.",
 				or.FitData.N(), weightedNote(or), pct(level))
+			if categorical != "" {
+				d.p("%s", strings.TrimSpace(categorical))
+			}
 		case "means":
 			d.h(3, "Marginal effects at the means")
-			d.p("The same effects at one point: every predictor at its mean (%s), a 0/1 predictor changed from 0 to 1 with the others at their means. Standard errors by the delta method; intervals at %s.", atList(or, set.At), pct(level))
+			d.p("The same effects at one point: every predictor at its mean (%s), a 0/1 predictor changed from 0 to 1 with the others at their means. Standard errors by the delta method; intervals at %s.%s", atList(or, set.At), pct(level), atCategorical(categorical))
 		case "values":
 			d.h(3, "Marginal effects at the plan's values")
-			d.p("The effects at the point %s (predictors the plan does not set are at their means; a predictor the plan sets is treated as continuous). Standard errors by the delta method; intervals at %s.", atList(or, set.At), pct(level))
+			d.p("The effects at the point %s (predictors the plan does not set are at their means, categorical ones at their reference level; a 0/1 predictor is changed from 0 to 1, any other numeric predictor differentiated, at that point). Standard errors by the delta method; intervals at %s.%s", atList(or, set.At), pct(level), atCategorical(categorical))
 		}
 		if set.Error != "" {
 			d.p("Not computed: %s.", set.Error)
@@ -76,4 +83,13 @@ func weightedNote(or *runner.OutcomeResult) string {
 		return " (weighted by the frequency weights)"
 	}
 	return ""
+}
+
+// atCategorical adds, when the outcome has categorical or transformed
+// terms, where categorical predictors are held at one point.
+func atCategorical(note string) string {
+	if note == "" {
+		return ""
+	}
+	return " Categorical predictors are at their reference level unless the plan sets one (inference.at);" + strings.TrimPrefix(note, " Effects are per column of the data, not per column of the model:")
 }

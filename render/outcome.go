@@ -47,6 +47,14 @@ func writeData(d *doc, or *runner.OutcomeResult) {
 		rows = append(rows, []string{l, numfmt.Num(ds.Counts[j]), numfmt.Fixed(100*ds.Counts[j]/ds.NObs(), 1) + "%"})
 	}
 	d.captioned("Outcome categories").table([]string{"Category", "Count", "Share"}, rows)
+	if terms := or.TermDescriptions(); len(terms) > 0 {
+		d.p("Predictor terms: how each term of the plan became columns of the models. Constants computed from the rows used (means, standard deviations, quantile knots, orthogonal-polynomial coefficients) are frozen and reused for predictions on new rows; decisions.json records them. A term's columns share one effect structure (parallel, nonparallel or constrained) and are tested together.")
+		var rows [][]string
+		for _, t := range terms {
+			rows = append(rows, []string{t[0], t[1], t[2]})
+		}
+		d.captioned("Predictor terms").table([]string{"Term", "What it is", "Columns"}, rows)
+	}
 	writeDescriptives(d, or)
 }
 

@@ -11,6 +11,7 @@ import (
 	"sort"
 
 	"ordplan/runner/data"
+	"ordplan/runner/design"
 	"ordplan/runner/fit"
 )
 
@@ -61,6 +62,10 @@ type OutcomeDecisions struct {
 	Lipsitz    *fit.Lipsitz       `json:"lipsitz,omitempty"`
 	Hypotheses []HypothesisResult `json:"hypotheses,omitempty"`
 	Marginal   []MarginalSet      `json:"marginal_effects,omitempty"`
+	// Terms: how each predictor term became design columns, with every
+	// constant frozen from the data (omitted when every term is a numeric
+	// column as it is).
+	Terms []design.TermRecord `json:"terms,omitempty"`
 }
 
 // FreeSetRecord is a partial set in JSON.
@@ -115,6 +120,9 @@ func BuildDecisions(r *Result) *Decisions {
 		od := OutcomeDecisions{Outcome: or.Outcome.Column, Categories: or.Data.Levels, Counts: or.Data.Counts,
 			RowsRead: or.Data.RowsRead, RowsUsed: or.Data.N, Dropped: nonNilDrops(or.Data.Dropped), NObs: or.Data.NObs(),
 			Choice: or.Choice, Notes: nonNil(or.Notes), Final: map[string]Verdict{}}
+		if or.Design != nil && !or.Design.Trivial() {
+			od.Terms = or.Design.Records()
+		}
 		for _, fs := range or.FreeSets {
 			od.PartialSet = append(od.PartialSet, FreeSetRecord{fs.Approach, nonNil(fs.Predictors), fs.Source})
 		}

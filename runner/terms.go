@@ -139,15 +139,20 @@ func termsIn(ts []fit.Term, names []string) []string {
 	return out
 }
 
-// describeTerms says, for the report, how each term that is not a plain
-// numeric column became design columns.
-func describeTerms(dz *design.Design) []string {
-	var out []string
+// TermDescriptions says, for the report, how each term that is not a
+// plain numeric column became design columns: the term, what it is, its
+// columns. It is empty when every term is a numeric column as it is.
+func (or *OutcomeResult) TermDescriptions() [][3]string {
+	if or.Design == nil || or.Design.Trivial() {
+		return nil
+	}
+	return describeTerms(or.Design)
+}
+
+func describeTerms(dz *design.Design) [][3]string {
+	var out [][3]string
 	for _, r := range dz.Records() {
-		if r.Kind == design.KindNumeric && len(r.Columns) == 1 && r.Columns[0] == r.Term && !r.Log && !r.Sqrt && r.CentreAt == nil && r.ScaledBy == nil {
-			continue
-		}
-		var what string
+		what := "numeric column as it is"
 		switch r.Kind {
 		case design.KindCategorical:
 			what = fmt.Sprintf("categorical %s, %s coding, reference %q, levels %s", r.Reads[0], r.Coding, r.Reference, strings.Join(r.Levels, ", "))
@@ -157,9 +162,11 @@ func describeTerms(dz *design.Design) []string {
 		case design.KindInteraction:
 			what = "interaction of " + strings.Join(dz.Terms[dz.Term(r.Term)].PartNames(dz), " and ")
 		default:
-			what = describeNumeric(r)
+			if r.Log || r.Sqrt || r.CentreAt != nil || r.ScaledBy != nil || r.Poly > 0 || len(r.Knots) > 0 {
+				what = describeNumeric(r)
+			}
 		}
-		out = append(out, fmt.Sprintf("%s: %s; columns %s", r.Term, what, strings.Join(r.Columns, ", ")))
+		out = append(out, [3]string{r.Term, what, strings.Join(r.Columns, ", ")})
 	}
 	return out
 }

@@ -2,14 +2,18 @@ package runner
 
 import (
 	"encoding/json"
+	"fmt"
 	"math"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
 	"ordplan/internal/refdata"
 	"ordplan/plan"
+	"ordplan/runner/design"
 	"ordplan/runner/fit"
 )
 
@@ -189,4 +193,284 @@ func indexOfName(names []string, n string) int {
 	return -1
 }
 
-var _ = fit.Term{}
+// inventedTrial writes an invented trial (seeded): pain relief none <
+// slight < moderate < complete, treatment drug/placebo, clinic site
+// north/east/south/west, age, dose (with zeros).
+func inventedTrial(n int) string {
+	rng := rand.New(rand.NewPCG(15, 2026))
+	var b strings.Builder
+	b.WriteString("relief,treat,site,age,dose\n")
+	cats := []string{"none", "slight", "moderate", "complete"}
+	sites := []string{"north", "east", "south", "west"}
+	for i := 0; i < n; i++ {
+		drug := rng.IntN(2)
+		s := rng.IntN(4)
+		age := 20 + 50*rng.Float64()
+		dose := 0.0
+		if rng.Float64() < 0.8 {
+			dose = math.Round(100*rng.ExpFloat64()) / 10
+		}
+		eta := 0.9*float64(drug) + 0.3*float64(s) - 0.02*(age-45) + 0.03*float64(drug)*(age-45) + 0.4*math.Log(dose+1) + 0.0008*(age-45)*(age-45)
+		u := rng.Float64()
+		z := eta + math.Log(u/(1-u))
+		y := 0
+		for _, c := range []float64{-0.5, 0.7, 1.9} {
+			if z > c {
+				y++
+			}
+		}
+		treat := []string{"placebo", "drug"}[drug]
+		fmt.Fprintf(&b, "%s,%s,%s,%.2f,%.1f\n", cats[y], treat, sites[s], age, dose)
+	}
+	return b.String()
+}
+
+const trialPlan = `version: 1
+title: invented trial
+data: {file: trial.csv}
+outcomes: [{column: relief, categories: [none, slight, moderate, complete]}]
+categorical:
+  treat: {levels: [placebo, drug]}
+  site: {levels: [north, east, south, west], coding: CODING}
+predictors:
+  - treat
+  - site
+  - {name: age, column: age, spline: {quantiles: [0.05, 0.35, 0.65, 0.95]}}
+  - {name: dose, column: dose, log: {shift: 1}, centre: mean}
+  - {interact: [treat, age]}
+models: {approaches: [cumulative], levels: [parallel, partial], partial: {free: [treat]}}
+tests: {parallel_lines: [wald, lr]}
+rules:
+  - choose: {by: aic}
+inference:
+  marginal_effects: [average, means]
+  predict: new.csv
+`
+
+const trialNewRows = "treat,site,age,dose\ndrug,west,33.5,0\nplacebo,north,61,12.5\ndrug,east,47.25,3\n"
+
+// A categorical term equals hand-made dummies; sum-to-zero and dummy
+// coding give the same log-likelihood and predictions (the same model,
+// reparameterized: an exact identity).
+func TestCodingsAreOneModel(t *testing.T) {
+	files := map[string]string{"trial.csv": inventedTrial(500), "new.csv": trialNewRows}
+	var lls []float64
+	var preds [][]float64
+	for _, coding := range []string{"treatment", "sum"} {
+		p := writePlan(t, strings.Replace(trialPlan, "CODING", coding, 1), files)
+		r := runPlan(t, p, 0)
+		or := r.Outcomes[0]
+		f := or.Find("cumulative/partial/logit")
+		if !f.OK() {
+			t.Fatalf("%s: %+v", coding, f.Result)
+		}
+		lls = append(lls, f.Result.LogLik)
+		nr := or.NewRows
+		if nr == nil || nr.Pred == nil {
+			t.Fatalf("%s: no predictions for new rows", coding)
+		}
+		pr, err := f.Result.Predict(nr.Design, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		preds = append(preds, pr.Prob)
+		// the interaction's columns, named term.level&term.k
+		if !slices.Contains(f.Result.Predictors, "treat.drug&age.2") {
+			t.Errorf("columns %v", f.Result.Predictors)
+		}
+	}
+	if math.Abs(lls[0]-lls[1]) > 1e-8 {
+		t.Errorf("log-likelihood: treatment %.10f, sum %.10f", lls[0], lls[1])
+	}
+	for i := range preds[0] {
+		if math.Abs(preds[0][i]-preds[1][i]) > 1e-8 {
+			t.Errorf("prediction %d: treatment %.10f, sum %.10f", i, preds[0][i], preds[1][i])
+		}
+	}
+	// hand-made dummies of site and treat give the same fit as the
+	// categorical terms (treatment coding)
+	var hand strings.Builder
+	hand.WriteString("relief,drug,east,south,west,age,dose\n")
+	for i, line := range strings.Split(strings.TrimSpace(files["trial.csv"]), "\n") {
+		if i == 0 {
+			continue
+		}
+		f := strings.Split(line, ",")
+		b := func(c bool) int {
+			if c {
+				return 1
+			}
+			return 0
+		}
+		fmt.Fprintf(&hand, "%s,%d,%d,%d,%d,%s,%s\n", f[0], b(f[1] == "drug"), b(f[2] == "east"), b(f[2] == "south"), b(f[2] == "west"), f[3], f[4])
+	}
+	handPlan := `version: 1
+data: {file: hand.csv}
+outcomes: [{column: relief, categories: [none, slight, moderate, complete]}]
+predictors: [drug, east, south, west, age]
+models: {approaches: [cumulative], levels: [parallel]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: aic}
+`
+	catPlan := `version: 1
+data: {file: trial.csv}
+outcomes: [{column: relief, categories: [none, slight, moderate, complete]}]
+categorical:
+  treat: {levels: [placebo, drug]}
+  site: {levels: [north, east, south, west]}
+predictors: [treat, site, age]
+models: {approaches: [cumulative], levels: [parallel]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: aic}
+`
+	h := runPlan(t, writePlan(t, handPlan, map[string]string{"hand.csv": hand.String()}), 0).Outcomes[0].Find("cumulative/parallel/logit").Result
+	c := runPlan(t, writePlan(t, catPlan, files), 0).Outcomes[0].Find("cumulative/parallel/logit").Result
+	if math.Abs(h.LogLik-c.LogLik) > 1e-9 {
+		t.Errorf("log-likelihood: dummies %.10f, categorical %.10f", h.LogLik, c.LogLik)
+	}
+	for i := range h.Estimates {
+		if !closeRel(c.Estimates[i], h.Estimates[i], 1e-8) || !closeRel(c.StdErrors[i], h.StdErrors[i], 1e-7) {
+			t.Errorf("%s / %s: %g (%g) vs %g (%g)", c.ParamNames[i], h.ParamNames[i], c.Estimates[i], c.StdErrors[i], h.Estimates[i], h.StdErrors[i])
+		}
+	}
+}
+
+// Marginal effects per source variable: the average effect of age (inside
+// a spline and an interaction with treat) and of dose (log, centred)
+// equals the central difference of the average predicted probabilities
+// when the raw variable moves; the effect of site is the average change
+// of the predicted probabilities from north to each level. Predictions
+// from raw new rows equal those from design rows made by hand.
+func TestSourceEffectsAgainstFiniteDifferences(t *testing.T) {
+	files := map[string]string{"trial.csv": inventedTrial(500), "new.csv": trialNewRows}
+	p := writePlan(t, strings.Replace(trialPlan, "CODING", "treatment", 1), files)
+	r := runPlan(t, p, 0)
+	or := r.Outcomes[0]
+	res := or.Chosen.Result
+	dz := or.Design
+	S, J := len(dz.Sources), res.J
+	avgProb := func(set func(raw []float64)) []float64 {
+		out := make([]float64, J)
+		raw := make([]float64, S)
+		var X []float64
+		for i := 0; i < or.Data.N; i++ {
+			copy(raw, or.Data.X[i*S:(i+1)*S])
+			set(raw)
+			row := make([]float64, len(dz.Columns))
+			if err := dz.Row(raw, row); err != nil {
+				t.Fatal(err)
+			}
+			X = append(X, row...)
+		}
+		pr, err := res.Predict(X, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for i := 0; i < or.Data.N; i++ {
+			for j := 0; j < J; j++ {
+				out[j] += pr.Prob[i*J+j] / float64(or.Data.N)
+			}
+		}
+		return out
+	}
+	var ame []fit.MarginalEffect
+	for _, set := range or.Marginal {
+		if set.Kind == "average" {
+			ame = set.Effects
+			if set.Error != "" {
+				t.Fatal(set.Error)
+			}
+		}
+	}
+	find := func(pred, change string, j int) float64 {
+		for _, me := range ame {
+			if me.Predictor == pred && me.Change == change && me.Category == res.Levels[j] {
+				return me.Effect
+			}
+		}
+		t.Fatalf("no effect %s %s %d in %+v", pred, change, j, ame)
+		return 0
+	}
+	for _, name := range []string{"age", "dose"} {
+		s := dz.Source(name)
+		h := 1e-4 * dz.SourceScale[s]
+		up := avgProb(func(raw []float64) { raw[s] += h })
+		down := avgProb(func(raw []float64) { raw[s] -= h })
+		for j := 0; j < J; j++ {
+			fd := (up[j] - down[j]) / (2 * h)
+			if got := find(name, "per unit", j); math.Abs(got-fd) > 1e-7 {
+				t.Errorf("%s, category %s: marginal effect %.10g, central difference %.10g", name, res.Levels[j], got, fd)
+			}
+		}
+	}
+	site := dz.Source("site")
+	north := avgProb(func(raw []float64) { raw[site] = 0 })
+	for l, level := range []string{"east", "south", "west"} {
+		at := avgProb(func(raw []float64) { raw[site] = float64(l + 1) })
+		for j := 0; j < J; j++ {
+			if got := find("site", "north to "+level, j); math.Abs(got-(at[j]-north[j])) > 1e-12 {
+				t.Errorf("site north to %s, category %d: %g, want %g", level, j, got, at[j]-north[j])
+			}
+		}
+	}
+	// new rows by hand: treat.drug, site dummies, spline basis of age at
+	// the frozen knots, log(dose + 1) minus the frozen mean, and the
+	// products of treat.drug with the age basis
+	var tr, ag, do design.Term
+	for _, term := range dz.Terms {
+		switch term.Name {
+		case "treat":
+			tr = term
+		case "age":
+			ag = term
+		case "dose":
+			do = term
+		}
+	}
+	_ = tr
+	rows := [][]float64{{1, 0, 0, 1, 33.5, 0}, {0, 0, 0, 0, 61, 12.5}, {1, 1, 0, 0, 47.25, 3}}
+	var X []float64
+	for _, r := range rows {
+		basis := naturalSpline(r[4], ag.Knots)
+		x := []float64{r[0], r[1], r[2], r[3]}
+		x = append(x, basis...)
+		x = append(x, math.Log(r[5]+1)-do.Mean)
+		for _, b := range basis {
+			x = append(x, r[0]*b)
+		}
+		X = append(X, x...)
+	}
+	want, err := res.Predict(X, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got := or.NewRows.Pred
+	for i := range want.Prob {
+		if math.Abs(got.Prob[i]-want.Prob[i]) > 1e-12 {
+			t.Errorf("new row %d category %d: %g from the raw row, %g from the design by hand", i/J, i%J, got.Prob[i], want.Prob[i])
+		}
+	}
+}
+
+// naturalSpline is the natural cubic spline basis written out from its
+// textbook definition (Hastie, Tibshirani & Friedman, The Elements of
+// Statistical Learning, 2nd ed., eqs. 5.4-5.5), scaled as the design
+// scales it: x, then (d_k(x) - d_{K-1}(x)) / (xi_K - xi_1)^2.
+func naturalSpline(x float64, xi []float64) []float64 {
+	K := len(xi)
+	cube := func(v float64) float64 {
+		if v <= 0 {
+			return 0
+		}
+		return v * v * v
+	}
+	d := func(k int) float64 { return (cube(x-xi[k]) - cube(x-xi[K-1])) / (xi[K-1] - xi[k]) }
+	out := []float64{x}
+	span := (xi[K-1] - xi[0]) * (xi[K-1] - xi[0])
+	for k := 0; k < K-2; k++ {
+		out = append(out, (d(k)-d(K-2))/span)
+	}
+	return out
+}
