@@ -200,9 +200,44 @@ func canonRule(r Rule) map[string]any {
 	var opts any = true
 	switch r.Kind {
 	case RuleRejectIfTestRejects:
-		opts = map[string]any{"test": r.Test, "alpha": r.Alpha}
+		o := map[string]any{"test": r.Test, "alpha": r.Alpha, "against": r.Against}
+		if r.AppliesTo != nil {
+			o["applies_to"] = r.AppliesTo
+		}
+		opts = o
 	case RuleChoose, RulePreferSimpler:
-		opts = map[string]any{"by": r.By, "margin": r.Margin}
+		opts = map[string]any{"by": r.By, "margin": r.Margin, "otherwise": r.Otherwise}
+	case RuleRejectIfSimplerIsClose:
+		o := map[string]any{"max_difference": r.MaxDifference}
+		if r.Grid != nil {
+			g := map[string][]float64{}
+			for _, ax := range r.Grid {
+				g[ax.Predictor] = ax.Values
+			}
+			o["grid"] = g
+		}
+		opts = o
+	case RuleRejectIfSparse:
+		o := map[string]any{}
+		if r.PerParameter > 0 {
+			o["per_parameter"] = r.PerParameter
+		}
+		if r.SmallestCategory > 0 {
+			o["smallest_category"] = r.SmallestCategory
+		}
+		if r.Within != "" {
+			o["within"] = r.Within
+		}
+		opts = o
+	case RuleRejectIfUnstable:
+		o := map[string]any{}
+		if r.MaxCondition > 0 {
+			o["max_condition"] = r.MaxCondition
+		}
+		if r.MinStartsAgreeing > 0 {
+			o["min_starts_agreeing"] = r.MinStartsAgreeing
+		}
+		opts = o
 	}
 	return map[string]any{r.Kind: opts}
 }

@@ -63,6 +63,11 @@ func (d *decoder) checkDataColumns(p *Plan) {
 	missing("data.weights", p.Data.Weights)
 	missing("data.offset", p.Data.Offset)
 	missing("data.cluster", p.Data.Cluster)
+	for i, r := range p.Rules {
+		if r.Within != "" {
+			missing(itemPath("rules", i)+"."+r.Kind+".within", r.Within)
+		}
+	}
 }
 
 func openReason(err error) string {

@@ -1,13 +1,14 @@
 package plan
 
 import (
+	"encoding/json"
 	"fmt"
-	"strconv"
+	"slices"
 	"strings"
 )
 
-// checkRules checks the order of the rules and that each one has
-// something to act on.
+// checkRules checks the order of the rules and that each one can do what
+// it says for every model of the plan.
 func (d *decoder) checkRules(p *Plan) {
 	if len(p.Rules) == 0 {
 		return
@@ -35,29 +36,146 @@ func (d *decoder) checkRules(p *Plan) {
 		}
 	}
 
-	approachesOK := d.clean("models.approaches")
+	modelsOK := d.clean("models.approaches") && d.clean("models.levels") && d.clean("models.links")
 	seen := map[string]int{}
 	for i, r := range p.Rules {
 		ip := itemPath("rules", i)
 		if r.Kind == "" || !d.clean(ip) {
 			continue
 		}
-		sig := fmt.Sprintf("%s|%s|%s|%s|%s", r.Kind, r.Test, strconv.FormatFloat(r.Alpha, 'g', -1, 64), r.By, strconv.FormatFloat(r.Margin, 'g', -1, 64))
-		if line, dup := seen[sig]; dup {
+		sig, _ := json.Marshal(canonRule(r))
+		if line, dup := seen[string(sig)]; dup {
 			d.errAt(ip, "repeats the rule at line %d", line)
 			continue
 		}
-		seen[sig] = r.Line
+		seen[string(sig)] = r.Line
+		at := ip + "." + r.Kind
 		switch r.Kind {
 		case RuleRejectNegativeProbabilities:
-			if approachesOK && !p.Models.HasApproach("cumulative") {
-				d.errAt(ip+"."+r.Kind, "applies only to cumulative fits, and models.approaches does not include cumulative")
+			if d.clean("models.approaches") && !p.Models.HasApproach("cumulative") {
+				d.errAt(at, "applies only to cumulative fits, and models.approaches does not include cumulative")
 			}
 		case RuleRejectIfTestRejects:
-			if d.clean("models.levels") && len(p.Models.Levels) < 2 {
-				d.errAt(ip+"."+r.Kind, "compares neighbouring levels, but models.levels has only one (%s)", strings.Join(p.Models.Levels, ""))
+			if modelsOK {
+				d.checkTestRule(p, r, at)
+			}
+		case RuleRejectIfSimplerIsClose:
+			if modelsOK && !hasNesting(p) {
+				d.errAt(at, "compares each model with a simpler one of the same approach and link, but models.levels (%s) has no such pair", strings.Join(p.Models.Levels, ", "))
+			}
+			if d.predictorsKnown(p) {
+				for _, ax := range r.Grid {
+					key := childPath(at+".grid", ax.Predictor)
+					switch {
+					case !slices.Contains(p.SourceColumns(), ax.Predictor):
+						d.errAt(key, "%s is not a column the predictors read (%s)", quote(ax.Predictor), strings.Join(p.SourceColumns(), ", "))
+					case p.categorical(ax.Predictor) != nil:
+						d.errAt(key, "%s is categorical; the grid takes numeric columns (categorical ones are held at their reference level)", quote(ax.Predictor))
+					}
+				}
+			}
+		case RuleRejectIfSparse:
+			if r.Within != "" {
+				for _, o := range p.Outcomes {
+					if o.Column == r.Within {
+						d.errAt(at+".within", "%s is the outcome; within names another column whose values split the rows", quote(r.Within))
+					}
+				}
+			}
+		case RuleRejectIfUnstable:
+			if r.MaxCondition == 0 && d.clean("models.levels") && !p.Models.HasLevel("constrained") && !p.Models.HasLevel("stereotype") {
+				d.errAt(at+".min_starts_agreeing", "applies only to constrained and stereotype models (searched from several starts), and models.levels includes neither")
+			}
+		case RuleChoose, RulePreferSimpler:
+			d.checkFinalRule(p, r, at)
+		}
+	}
+}
+
+// checkTestRule refuses a test rule that would test nothing, or whose test
+// is not defined for some pair it compares.
+func (d *decoder) checkTestRule(p *Plan, r Rule, at string) {
+	pairs := p.TestPairs(r)
+	if len(pairs) == 0 {
+		what := "models.levels (" + strings.Join(p.Models.Levels, ", ") + ")"
+		if r.AppliesTo != nil {
+			what += " with applies_to (" + strings.Join(r.AppliesTo, ", ") + ")"
+		}
+		d.errAt(at, "tests each model against a less constrained one, but %s gives no such pair", what)
+		return
+	}
+	var bad []string
+	why := ""
+	for _, tp := range pairs {
+		if ok, reason := TestDefined(r.Test, tp.Approach, tp.Link, tp.Restricted, tp.Full, p.Data.Sampling()); !ok {
+			bad = append(bad, tp.String())
+			why = reason
+		}
+	}
+	if len(bad) == 0 {
+		return
+	}
+	key := at
+	if d.given(at + ".test") {
+		key = at + ".test"
+	}
+	hint := ""
+	if !p.Data.Sampling() {
+		hint = "; use test: lr, or limit the rule with applies_to or against"
+	}
+	d.errAt(key, "the %s test is not defined for %d of the %d comparisons this rule makes (%s): %s; %s%s",
+		TestName(r.Test), len(bad), len(pairs), r.Against, strings.Join(bad, ", "), why, hint)
+}
+
+func hasNesting(p *Plan) bool {
+	for _, a := range p.Models.Approaches {
+		for _, e := range p.Models.Levels {
+			if !p.Models.EffectsFitted(a, e) {
+				continue
+			}
+			for _, t := range lessConstrained[e] {
+				if p.Models.EffectsFitted(a, t) {
+					return true
+				}
 			}
 		}
+	}
+	return false
+}
+
+// checkFinalRule checks the criterion against the weights and the fallback
+// model against the grid.
+func (d *decoder) checkFinalRule(p *Plan, r Rule, at string) {
+	if p.Data.Sampling() && (r.By == "aic" || r.By == "bic") && d.clean("data") {
+		key, dflt := at, " (the default)"
+		if d.given(at + ".by") {
+			key, dflt = at+".by", ""
+		}
+		d.errAt(key, "by: %s%s assumes a likelihood, but with sampling weights (data.weight_kind: probability) the fits maximize a pseudo-likelihood; use by: tic, whose penalty is valid for pseudo-likelihoods", r.By, dflt)
+	}
+	if r.Otherwise == OtherwiseStop || !d.clean("models") {
+		return
+	}
+	key := at + ".otherwise"
+	a, e, l, ok := ParseModelID(r.Otherwise)
+	if !ok {
+		d.errAt(key, "want stop or a model of the plan written approach/effects/link, such as cumulative/parallel/logit; got %s", quote(r.Otherwise))
+		return
+	}
+	var probs []string
+	if !p.Models.HasApproach(a) {
+		probs = append(probs, fmt.Sprintf("approach %s is not in models.approaches", quote(a)))
+	}
+	if !p.Models.HasLevel(e) {
+		probs = append(probs, fmt.Sprintf("effects %s are not in models.levels", quote(e)))
+	} else if !p.Models.EffectsFitted(a, e) {
+		probs = append(probs, "stereotype effects exist only for the adjacent approach")
+	}
+	if !slices.Contains(p.Models.Links, l) {
+		probs = append(probs, fmt.Sprintf("link %s is not in models.links", quote(l)))
+	}
+	if len(probs) > 0 {
+		d.errAt(key, "the fallback %s is not a model of the plan: %s", r.Otherwise, strings.Join(probs, "; "))
 	}
 }
 

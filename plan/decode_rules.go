@@ -56,15 +56,17 @@ func (d *decoder) decodeRule(n *yaml.Node, path string) Rule {
 			return r
 		}
 	case RuleRejectIfTestRejects:
-		r.Test = "lr"
+		r.Test, r.Against = "lr", AgainstLeast
 		m, ok := d.ruleOptions(v, p, rejectKeys)
 		if !ok {
 			return r
 		}
 		m.word("test", "test", ruleTestWords, &r.Test)
 		m.probability("alpha", &r.Alpha) // 0 = tests.alpha, set in applyDefaults
+		m.word("against", "comparison", againstWords, &r.Against)
+		m.words("applies_to", "effect structure", levelWords, false, &r.AppliesTo)
 	case RuleChoose, RulePreferSimpler:
-		r.By = "bic"
+		r.By, r.Otherwise = "bic", OtherwiseStop
 		if kind == RulePreferSimpler {
 			r.Margin = 2
 		}
@@ -73,14 +75,56 @@ func (d *decoder) decodeRule(n *yaml.Node, path string) Rule {
 			return r
 		}
 		m.word("by", "criterion", criterionWords, &r.By)
-		if mv := m.get("margin"); mv != nil {
-			if f, ok := d.number(mv, m.at("margin")); ok {
-				if f < 0 {
-					d.errorf(deref(mv), m.at("margin"), "%v is out of range (want a number >= 0)", f)
+		if f, ok := m.atLeast("margin", 0, false); ok {
+			r.Margin = f
+		}
+		m.name("otherwise", &r.Otherwise)
+	case RuleRejectIfSimplerIsClose:
+		m, ok := d.ruleOptions(v, p, closeKeys)
+		if !ok {
+			return r
+		}
+		if m.required("max_difference") != nil {
+			m.probability("max_difference", &r.MaxDifference)
+		}
+		r.Grid = d.decodeGrid(m.get("grid"), m.at("grid"))
+	case RuleRejectIfSparse:
+		m, ok := d.ruleOptions(v, p, sparseKeys)
+		if !ok {
+			return r
+		}
+		if f, ok := m.atLeast("per_parameter", 0, true); ok {
+			r.PerParameter = f
+		}
+		if f, ok := m.atLeast("smallest_category", 0, true); ok {
+			r.SmallestCategory = f
+		}
+		m.name("within", &r.Within)
+		if m.get("per_parameter") == nil && m.get("smallest_category") == nil {
+			d.errorf(deref(v), p, "give per_parameter (observations per parameter), smallest_category (smallest outcome category count) or both")
+		}
+		if r.Within != "" && m.get("smallest_category") == nil {
+			d.errAt(m.at("within"), "within counts the outcome categories within each value of a column, and smallest_category is not given")
+		}
+	case RuleRejectIfUnstable:
+		m, ok := d.ruleOptions(v, p, unstableKeys)
+		if !ok {
+			return r
+		}
+		if f, ok := m.atLeast("max_condition", 1, true); ok {
+			r.MaxCondition = f
+		}
+		if mv := m.get("min_starts_agreeing"); mv != nil {
+			if n, ok := d.integer(mv, m.at("min_starts_agreeing")); ok {
+				if n < 1 || n > 1000 {
+					d.errorf(deref(mv), m.at("min_starts_agreeing"), "%d is out of range (want a whole number from 1 to 1000)", n)
 				} else {
-					r.Margin = f
+					r.MinStartsAgreeing = int(n)
 				}
 			}
+		}
+		if m.get("max_condition") == nil && m.get("min_starts_agreeing") == nil {
+			d.errorf(deref(v), p, "give max_condition (largest condition number of the information), min_starts_agreeing (starts of a constrained search that reach the best value) or both")
 		}
 	}
 	r.Kind = kind
@@ -123,4 +167,66 @@ func (d *decoder) ruleOptions(v *yaml.Node, path string, keys []string) (*mappin
 	}
 	m := d.mapping(v, path, keys)
 	return m, m != nil
+}
+
+// atLeast reads a number that must be >= lo (> lo when strict).
+func (m *mapping) atLeast(key string, lo float64, strict bool) (float64, bool) {
+	mv := m.get(key)
+	if mv == nil {
+		return 0, false
+	}
+	f, ok := m.d.number(mv, m.at(key))
+	if !ok {
+		return 0, false
+	}
+	if f < lo || strict && f == lo {
+		op := ">="
+		if strict {
+			op = ">"
+		}
+		m.d.errorf(deref(mv), m.at(key), "%v is out of range (want a number %s %v)", f, op, lo)
+		return 0, false
+	}
+	return f, true
+}
+
+// decodeGrid reads a grid of prediction points: a mapping of predictor to
+// a non-empty list of numbers, in plan order.
+func (d *decoder) decodeGrid(n *yaml.Node, path string) []GridAxis {
+	n = deref(n)
+	if n == nil {
+		return nil
+	}
+	if n.Kind != yaml.MappingNode || len(n.Content) == 0 {
+		d.errorf(n, path, "want a mapping of predictor: [values], such as {age: [20, 40, 60]}; got %s", describe(n))
+		return nil
+	}
+	var out []GridAxis
+	seen := map[string]bool{}
+	for i := 0; i+1 < len(n.Content); i += 2 {
+		k, v := deref(n.Content[i]), n.Content[i+1]
+		kp := childPath(path, k.Value)
+		d.record(kp, v)
+		if seen[k.Value] {
+			d.errorf(k, kp, "predictor is given twice")
+			continue
+		}
+		seen[k.Value] = true
+		items, ok := d.list(v, kp)
+		if !ok {
+			continue
+		}
+		if len(items) == 0 {
+			d.errorf(deref(v), kp, "list is empty; give at least one value")
+			continue
+		}
+		ax := GridAxis{Predictor: k.Value}
+		for j, it := range items {
+			if f, ok := d.number(it, itemPath(kp, j)); ok {
+				ax.Values = append(ax.Values, f)
+			}
+		}
+		out = append(out, ax)
+	}
+	return out
 }

@@ -94,14 +94,42 @@ type Tests struct {
 	Alpha         float64  // default 0.05
 }
 
-// Rule is one step of model selection, applied in plan order.
+// Rule is one step of model selection, applied in plan order. Each kind
+// reads only its own options; the others keep their zero values.
 type Rule struct {
-	Line   int     // line of the rule in the plan
-	Kind   string  // one of the Rule* kinds
-	Test   string  // reject_if_test_rejects: lr | wald | score | brant (default lr)
-	Alpha  float64 // reject_if_test_rejects (default Tests.Alpha)
-	By     string  // choose, prefer_simpler: aic | bic (default bic)
-	Margin float64 // choose (default 0), prefer_simpler (default 2); >= 0
+	Line int    // line of the rule in the plan
+	Kind string // one of the Rule* kinds
+
+	// reject_if_test_rejects
+	Test      string   // lr | wald | score | brant (default lr)
+	Alpha     float64  // default Tests.Alpha
+	Against   string   // one of the Against* words (default AgainstLeast)
+	AppliesTo []string // effect structures the rule tests (nil: every one with a less constrained model)
+
+	// choose, prefer_simpler
+	By        string  // aic | bic | tic (default bic)
+	Margin    float64 // choose (default 0), prefer_simpler (default 2); >= 0
+	Otherwise string  // when every candidate is rejected: OtherwiseStop (default) or a model "approach/effects/link"
+
+	// reject_if_simpler_is_close
+	MaxDifference float64    // largest difference in a predicted category probability, in (0, 1)
+	Grid          []GridAxis // where the predictions are compared (nil: the rows used)
+
+	// reject_if_sparse
+	PerParameter     float64 // observations per parameter at least this (0: not checked)
+	SmallestCategory float64 // every outcome category count at least this (0: not checked)
+	Within           string  // count the categories within each value of this column
+
+	// reject_if_unstable
+	MaxCondition      float64 // information condition at most this (0: not checked)
+	MinStartsAgreeing int     // constrained search: starts reaching the best value at least this (0: not checked)
+}
+
+// GridAxis is one predictor of a grid of prediction points and its values;
+// predictors the grid leaves out are held at their means.
+type GridAxis struct {
+	Predictor string
+	Values    []float64
 }
 
 // Rule kinds.
@@ -109,9 +137,26 @@ const (
 	RuleRejectUnconverged           = "reject_unconverged"
 	RuleRejectNegativeProbabilities = "reject_negative_probabilities"
 	RuleRejectIfTestRejects         = "reject_if_test_rejects"
+	RuleRejectIfSimplerIsClose      = "reject_if_simpler_is_close"
+	RuleRejectIfSparse              = "reject_if_sparse"
+	RuleRejectIfUnstable            = "reject_if_unstable"
 	RuleChoose                      = "choose"
 	RulePreferSimpler               = "prefer_simpler"
 )
+
+// What a test rule tests a model against.
+const (
+	AgainstLeast = "least_constrained"     // the least constrained model of its approach and link
+	AgainstNext  = "next_less_constrained" // the nearest less constrained one
+	AgainstEach  = "each_less_constrained" // every less constrained one in turn
+)
+
+// OtherwiseStop is the default of a final rule's otherwise option: when
+// every candidate is rejected, nothing is chosen and the run fails.
+const OtherwiseStop = "stop"
+
+// Final reports whether the rule picks the model (the last rule).
+func (r Rule) Final() bool { return r.Kind == RuleChoose || r.Kind == RulePreferSimpler }
 
 // Report controls the written report.
 type Report struct {
@@ -124,6 +169,10 @@ type Report struct {
 
 // HasApproach reports whether the plan fits models of the given approach.
 func (m Models) HasApproach(a string) bool { return slices.Contains(m.Approaches, a) }
+
+// Sampling reports whether the weights are sampling (probability) weights,
+// so that the fits maximize a pseudo-likelihood.
+func (d Data) Sampling() bool { return d.Weights != "" && d.WeightKind == "probability" }
 
 // HasLevel reports whether the plan fits models of the given level.
 func (m Models) HasLevel(l string) bool { return slices.Contains(m.Levels, l) }

@@ -81,8 +81,8 @@ func TestExamplePlan(t *testing.T) {
 			t.Errorf("rule %d has no line", i)
 		}
 	}
-	check("rule 2", p.Rules[2], Rule{Line: p.Rules[2].Line, Kind: RuleRejectIfTestRejects, Test: "lr", Alpha: 0.05})
-	check("rule 3", p.Rules[3], Rule{Line: p.Rules[3].Line, Kind: RulePreferSimpler, By: "bic", Margin: 2})
+	check("rule 2", p.Rules[2], Rule{Line: p.Rules[2].Line, Kind: RuleRejectIfTestRejects, Test: "lr", Alpha: 0.05, Against: AgainstLeast})
+	check("rule 3", p.Rules[3], Rule{Line: p.Rules[3].Line, Kind: RulePreferSimpler, By: "bic", Margin: 2, Otherwise: OtherwiseStop})
 	check("Covariance", p.Covariance, "oim")
 	check("Report", p.Report, Report{
 		Title:           "Cycling safety after the quiet-streets pilot",
@@ -116,8 +116,8 @@ func TestDefaults(t *testing.T) {
 	check("Select", p.Models.Partial.Select, (*Select)(nil))
 	check("Tests", p.Tests, Tests{ParallelLines: []string{"brant", "lr", "score", "wald"}, Alpha: 0.1})
 	check("Rules", p.Rules, []Rule{
-		{Line: 11, Kind: RuleRejectIfTestRejects, Test: "lr", Alpha: 0.1},
-		{Line: 12, Kind: RulePreferSimpler, By: "bic", Margin: 2},
+		{Line: 11, Kind: RuleRejectIfTestRejects, Test: "lr", Alpha: 0.1, Against: AgainstLeast},
+		{Line: 12, Kind: RulePreferSimpler, By: "bic", Margin: 2, Otherwise: OtherwiseStop},
 	})
 	check("Report", p.Report, Report{Title: "Small", FocusPredictor: "a", ConfidenceLevel: 0.95})
 
@@ -135,7 +135,7 @@ func TestDefaults(t *testing.T) {
 	check("MissingValues", p.Data.MissingValues, []string{})
 	check("Select", p.Models.Partial.Select, &Select{Method: "stepwise", Alpha: 0.05, Test: "wald"})
 	check("Groups", p.Models.Partial.Groups, []Group(nil))
-	check("Rules", p.Rules, []Rule{{Line: 12, Kind: RuleChoose, By: "aic", Margin: 0}})
+	check("Rules", p.Rules, []Rule{{Line: 12, Kind: RuleChoose, By: "aic", Margin: 0, Otherwise: OtherwiseStop}})
 	check("Report.Title", p.Report.Title, "Other")
 }
 
@@ -149,9 +149,9 @@ func TestBadPlans(t *testing.T) {
 		want     []string
 	}{
 		{"unknown criterion", "{by: aic}", "{by: aicc}",
-			[]string{`bad.yaml:11:18: rules[0].choose.by: unknown criterion "aicc" (want aic or bic)`}},
+			[]string{`bad.yaml:11:18: rules[0].choose.by: unknown criterion "aicc" (want aic, bic or tic)`}},
 		{"criterion case", "{by: aic}", "{by: AIC}",
-			[]string{`rules[0].choose.by: unknown criterion "AIC" (want aic or bic); did you mean "aic"?`}},
+			[]string{`rules[0].choose.by: unknown criterion "AIC" (want aic, bic or tic); did you mean "aic"?`}},
 		{"unknown top key", "", "colour: blue\n",
 			[]string{`bad.yaml:12:1: colour: unknown key "colour" (allowed: version, title, seed, data,`}},
 		{"unknown nested key", "  file: d.csv\n", "  file: d.csv\n  sep: ';'\n",
@@ -265,7 +265,7 @@ func TestBadPlans(t *testing.T) {
 		{"stereotype without adjacent", "models:\n", "models:\n  approaches: [cumulative, stage]\n  levels: [parallel, partial, stereotype]\n",
 			[]string{`bad.yaml:9:31: models.levels[2]: the stereotype level needs the adjacent approach`}},
 		{"unknown rule kind", "  - choose: {by: aic}\n", "  - reject_everything: true\n  - choose: {by: aic}\n",
-			[]string{`bad.yaml:11:5: rules[0]: unknown rule kind "reject_everything" (want reject_unconverged, reject_negative_probabilities, reject_if_test_rejects, choose or prefer_simpler)`}},
+			[]string{`bad.yaml:11:5: rules[0]: unknown rule kind "reject_everything" (want reject_unconverged, reject_negative_probabilities, reject_if_test_rejects, reject_if_simpler_is_close, reject_if_sparse, reject_if_unstable, choose or prefer_simpler)`}},
 		{"rule as string", "  - choose: {by: aic}\n", "  - reject_unconverged\n  - choose: {by: aic}\n",
 			[]string{`bad.yaml:11:5: rules[0]: want a one-key mapping naming the rule kind`, `got string "reject_unconverged"`}},
 		{"rule with two keys", "  - choose: {by: aic}\n", "  - choose: {by: aic}\n    reject_unconverged: true\n",
@@ -283,7 +283,7 @@ func TestBadPlans(t *testing.T) {
 		{"unknown rule test", "  - choose: {by: aic}\n", "  - reject_if_test_rejects: {test: f}\n  - choose: {by: aic}\n",
 			[]string{`bad.yaml:11:36: rules[0].reject_if_test_rejects.test: unknown test "f" (want lr, wald, score or brant)`}},
 		{"unknown rule option", "  - choose: {by: aic}\n", "  - reject_if_test_rejects: {level: 0.1}\n  - choose: {by: aic}\n",
-			[]string{`rules[0].reject_if_test_rejects.level: unknown key "level" (allowed: test, alpha)`}},
+			[]string{`rules[0].reject_if_test_rejects.level: unknown key "level" (allowed: test, alpha, against, applies_to)`}},
 		{"rule alpha range", "  - choose: {by: aic}\n", "  - reject_if_test_rejects: {alpha: -1}\n  - choose: {by: aic}\n",
 			[]string{`rules[0].reject_if_test_rejects.alpha: -1 is out of range`}},
 		{"negative margin", "{by: aic}", "{by: aic, margin: -2}",
@@ -295,7 +295,48 @@ func TestBadPlans(t *testing.T) {
 		{"negative probabilities without cumulative", tail, "models:\n  approaches: [stage, adjacent]\n  partial:\n    free: [a]\nrules:\n  - reject_negative_probabilities: true\n  - choose: {by: aic}\n",
 			[]string{`bad.yaml:12:36: rules[0].reject_negative_probabilities: applies only to cumulative fits, and models.approaches does not include cumulative`}},
 		{"test rule with one level", tail, "models:\n  levels: [parallel]\nrules:\n  - reject_if_test_rejects: true\n  - choose: {by: aic}\n",
-			[]string{`bad.yaml:10:29: rules[0].reject_if_test_rejects: compares neighbouring levels, but models.levels has only one (parallel)`}},
+			[]string{`bad.yaml:10:29: rules[0].reject_if_test_rejects: tests each model against a less constrained one, but models.levels (parallel) gives no such pair`}},
+		{"brant outside cumulative logit", tail, "models:\n  approaches: [cumulative, stage]\n  levels: [parallel, nonparallel]\nrules:\n  - reject_if_test_rejects: {test: brant}\n  - choose: {by: aic}\n",
+			[]string{`bad.yaml:11:36: rules[0].reject_if_test_rejects.test: the Brant test is not defined for 1 of the 2 comparisons this rule makes (least_constrained): stage/parallel/logit against stage/nonparallel/logit; the Brant test compares the cumulative logit parallel model with the nonparallel one, and nothing else; use test: lr, or limit the rule with applies_to or against`}},
+		{"brant with partial models", tail, "models:\n  approaches: [cumulative]\n  levels: [parallel, partial, nonparallel]\n  partial: {free: [a]}\nrules:\n  - reject_if_test_rejects: {test: brant, against: each_less_constrained}\n  - choose: {by: aic}\n",
+			[]string{`rules[0].reject_if_test_rejects.test: the Brant test is not defined for 2 of the 3 comparisons this rule makes (each_less_constrained): cumulative/parallel/logit against cumulative/partial/logit, cumulative/partial/logit against cumulative/nonparallel/logit;`}},
+		{"wald with constrained models", tail, "models:\n  approaches: [cumulative]\n  levels: [parallel, constrained]\n  partial: {free: [a]}\nrules:\n  - reject_if_test_rejects: {test: wald}\n  - choose: {by: aic}\n",
+			[]string{`rules[0].reject_if_test_rejects.test: the Wald test is not defined for 1 of the 1 comparisons this rule makes (least_constrained): cumulative/parallel/logit against cumulative/constrained/logit; the Wald test here compares models whose slopes are linear in the parameters`}},
+		{"unknown against", "  - choose: {by: aic}\n", "  - reject_if_test_rejects: {against: nearest}\n  - choose: {by: aic}\n",
+			[]string{`rules[0].reject_if_test_rejects.against: unknown comparison "nearest" (want least_constrained, next_less_constrained or each_less_constrained)`}},
+		{"applies_to leaves nothing", tail, "models:\n  levels: [parallel, nonparallel]\nrules:\n  - reject_if_test_rejects: {applies_to: [nonparallel]}\n  - choose: {by: aic}\n",
+			[]string{`rules[0].reject_if_test_rejects: tests each model against a less constrained one, but models.levels (parallel, nonparallel) with applies_to (nonparallel) gives no such pair`}},
+		{"sampling weights with bic", "  file: d.csv\n", "  file: d.csv\n  weights: w\n  weight_kind: probability\n",
+			[]string{`bad.yaml:13:18: rules[0].choose.by: by: aic assumes a likelihood, but with sampling weights (data.weight_kind: probability) the fits maximize a pseudo-likelihood; use by: tic`}},
+		{"sampling weights default criterion", "  file: d.csv\noutcomes:\n  - column: y\npredictors: [a, b, c]\nmodels:\n  partial:\n    free: [a]\nrules:\n  - choose: {by: aic}\n",
+			"  file: d.csv\n  weights: w\n  weight_kind: probability\noutcomes:\n  - column: y\npredictors: [a, b, c]\nmodels:\n  partial:\n    free: [a]\nrules:\n  - prefer_simpler: true\n",
+			[]string{`rules[0].prefer_simpler: by: bic (the default) assumes a likelihood`}},
+		{"sampling weights with lr test", "data:\n  file: d.csv\n", "data:\n  file: d.csv\n  weights: w\n  weight_kind: probability\n",
+			[]string{`rules[0].choose.by: by: aic assumes a likelihood`}},
+		{"fallback not in the grid", "{by: aic}", "{by: aic, otherwise: cumulative/stereotype/probit}",
+			[]string{`bad.yaml:11:34: rules[0].choose.otherwise: the fallback cumulative/stereotype/probit is not a model of the plan: effects "stereotype" are not in models.levels; link "probit" is not in models.links`}},
+		{"fallback badly written", "{by: aic}", "{by: aic, otherwise: parallel}",
+			[]string{`rules[0].choose.otherwise: want stop or a model of the plan written approach/effects/link, such as cumulative/parallel/logit; got "parallel"`}},
+		{"close rule without amount", "  - choose: {by: aic}\n", "  - reject_if_simpler_is_close: {grid: {a: [0, 1]}}\n  - choose: {by: aic}\n",
+			[]string{`bad.yaml:11:33: rules[0].reject_if_simpler_is_close.max_difference: required key is missing`}},
+		{"close rule grid names no predictor", "  - choose: {by: aic}\n", "  - reject_if_simpler_is_close: {max_difference: 0.02, grid: {q: [0, 1]}}\n  - choose: {by: aic}\n",
+			[]string{`rules[0].reject_if_simpler_is_close.grid.q: "q" is not a column the predictors read (a, b, c)`}},
+		{"close rule empty grid list", "  - choose: {by: aic}\n", "  - reject_if_simpler_is_close: {max_difference: 0.02, grid: {a: []}}\n  - choose: {by: aic}\n",
+			[]string{`rules[0].reject_if_simpler_is_close.grid.a: list is empty; give at least one value`}},
+		{"close rule amount range", "  - choose: {by: aic}\n", "  - reject_if_simpler_is_close: {max_difference: 2}\n  - choose: {by: aic}\n",
+			[]string{`rules[0].reject_if_simpler_is_close.max_difference: 2 is out of range (want a number strictly between 0 and 1)`}},
+		{"sparse rule without limits", "  - choose: {by: aic}\n", "  - reject_if_sparse: {within: c}\n  - choose: {by: aic}\n",
+			[]string{`bad.yaml:11:23: rules[0].reject_if_sparse: give per_parameter (observations per parameter), smallest_category (smallest outcome category count) or both`, `rules[0].reject_if_sparse.within: within counts the outcome categories within each value of a column, and smallest_category is not given`}},
+		{"sparse rule negative", "  - choose: {by: aic}\n", "  - reject_if_sparse: {per_parameter: -5}\n  - choose: {by: aic}\n",
+			[]string{`rules[0].reject_if_sparse.per_parameter: -5 is out of range (want a number > 0)`}},
+		{"sparse within the outcome", "  - choose: {by: aic}\n", "  - reject_if_sparse: {smallest_category: 5, within: y}\n  - choose: {by: aic}\n",
+			[]string{`rules[0].reject_if_sparse.within: "y" is the outcome`}},
+		{"unstable rule without limits", "  - choose: {by: aic}\n", "  - reject_if_unstable: true\n  - choose: {by: aic}\n",
+			[]string{`rules[0].reject_if_unstable: give max_condition (largest condition number of the information), min_starts_agreeing (starts of a constrained search that reach the best value) or both`}},
+		{"unstable starts without constrained models", tail, "models:\n  levels: [parallel, nonparallel]\nrules:\n  - reject_if_unstable: {min_starts_agreeing: 2}\n  - choose: {by: aic}\n",
+			[]string{`rules[0].reject_if_unstable.min_starts_agreeing: applies only to constrained and stereotype models`}},
+		{"unstable starts range", "  - choose: {by: aic}\n", "  - reject_if_unstable: {min_starts_agreeing: 0}\n  - choose: {by: aic}\n",
+			[]string{`rules[0].reject_if_unstable.min_starts_agreeing: 0 is out of range (want a whole number from 1 to 1000)`}},
 		{"focus not a predictor", "", "report: {focus_predictor: zz}\n",
 			[]string{`bad.yaml:12:27: report.focus_predictor: "zz" is not a predictor (predictors: a, b, c)`}},
 		{"confidence range", "", "report: {confidence_level: 95}\n",
@@ -368,7 +409,7 @@ report:
 		`m.yaml:7:13: outcomes[0].column: "y" is both an outcome and a predictor (predictors[2], line 8)`,
 		`m.yaml:10:18: models.links[1]: unknown link "tobit"`,
 		`m.yaml:12:15: models.partial.free[1]: "zz" is not a predictor (predictors: a, b, y)`,
-		`m.yaml:14:18: rules[0].choose.by: unknown criterion "aicc" (want aic or bic)`,
+		`m.yaml:14:18: rules[0].choose.by: unknown criterion "aicc" (want aic, bic or tic)`,
 		`m.yaml:16:20: report.focus_predictor: "q" is not a predictor`,
 	}
 	lines := strings.Split(err.Error(), "\n")

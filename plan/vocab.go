@@ -10,7 +10,8 @@ var (
 	linkWords         = []string{"logit", "probit", "cloglog", "loglog", "cauchit"}
 	parallelTestWords = []string{"brant", "lr", "score", "wald", "wolfe_gould"}
 	ruleTestWords     = []string{"lr", "wald", "score", "brant"}
-	criterionWords    = []string{"aic", "bic"}
+	criterionWords    = []string{"aic", "bic", "tic"}
+	againstWords      = []string{AgainstLeast, AgainstNext, AgainstEach}
 	covarianceWords   = []string{"oim", "eim", "robust", "robust_hc0", "cluster"}
 	missingWords      = []string{"drop", "refuse"}
 	weightKindWords   = []string{"frequency", "probability"}
@@ -20,6 +21,9 @@ var (
 		RuleRejectUnconverged,
 		RuleRejectNegativeProbabilities,
 		RuleRejectIfTestRejects,
+		RuleRejectIfSimplerIsClose,
+		RuleRejectIfSparse,
+		RuleRejectIfUnstable,
 		RuleChoose,
 		RulePreferSimpler,
 	}
@@ -44,8 +48,6 @@ var (
 	groupKeys   = []string{"name", "predictors"}
 	testsKeys   = []string{"parallel_lines", "alpha"}
 	reportKeys  = []string{"title", "focus_predictor", "panels_by", "confidence_level", "timestamp"}
-	rejectKeys  = []string{"test", "alpha"}
-	chooseKeys  = []string{"by", "margin"}
 )
 
 // orList renders ["a", "b", "c"] as "a, b or c".

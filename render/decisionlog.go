@@ -15,7 +15,7 @@ func writeDecisionLog(d *doc, or *runner.OutcomeResult) {
 	}
 	for i, ro := range or.Rules {
 		d.p("**Rule %d, `%s`** (plan line %d). %s", i+1, ro.Rule.Kind, ro.Rule.Line, ro.Description)
-		choosing := ro.Rule.Kind == "choose" || ro.Rule.Kind == "prefer_simpler"
+		choosing := ro.Rule.Final()
 		var rows [][]string
 		for _, v := range ro.Verdicts {
 			verdict := "kept"
@@ -35,5 +35,12 @@ func writeDecisionLog(d *doc, or *runner.OutcomeResult) {
 		}
 		d.captioned(fmt.Sprintf("Rule %d, %s: verdict on each model", i+1, ro.Rule.Kind)).table([]string{"Model", "Verdict", "Why"}, rows)
 	}
-	d.p("**Result:** %s.", or.Choice)
+	switch {
+	case or.Chosen == nil:
+		d.p("**Result: no model chosen.** %s.", or.Choice)
+	case or.Fallback:
+		d.p("**Result (the plan's fallback, not a choice by the rules):** %s.", or.Choice)
+	default:
+		d.p("**Result:** %s.", or.Choice)
+	}
 }

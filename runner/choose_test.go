@@ -66,14 +66,14 @@ func TestChooseAndTieBreak(t *testing.T) {
 		{
 			name: "nothing usable", by: "aic",
 			fits:   []*FitEntry{candidate("sep", nofin, 0, 0, 3)},
-			reason: "no model survived the rules, so none was chosen",
+			reason: "no model chosen: every candidate was rejected, and the plan says to stop",
 		},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			or := &OutcomeResult{}
 			ro := &RuleOutcome{}
-			chooseModel(plan.Rule{Kind: plan.RuleChoose, By: c.by, Margin: c.margin, Line: 7}, or, c.fits, ro)
+			newRuleEnv(&plan.Plan{}, or).choose(plan.Rule{Kind: plan.RuleChoose, By: c.by, Margin: c.margin, Line: 7, Otherwise: plan.OtherwiseStop}, c.fits, ro)
 			if c.chosen == "" {
 				if or.Chosen != nil || !strings.Contains(or.Choice, c.reason) {
 					t.Fatalf("chose %v (%q), want none (%q)", or.Chosen, or.Choice, c.reason)

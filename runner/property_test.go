@@ -237,7 +237,15 @@ func (c *propCase) randomPlan(rng *rand.Rand, id int) string {
 		b.WriteString("  - reject_negative_probabilities: true\n")
 	}
 	if len(levels) > 1 && rng.IntN(2) == 0 {
-		fmt.Fprintf(&b, "  - reject_if_test_rejects: {test: %s, alpha: 0.05}\n", []string{"lr", "wald", "score"}[rng.IntN(3)])
+		test := []string{"lr", "wald", "score"}[rng.IntN(3)]
+		// Wald and score tests compare models linear in the parameters
+		// only; the plan check refuses them otherwise.
+		if slices.Contains(levels, "constrained") || slices.Contains(levels, "stereotype") {
+			test = "lr"
+		}
+		if nested(levels) {
+			fmt.Fprintf(&b, "  - reject_if_test_rejects: {test: %s, alpha: 0.05, against: each_less_constrained}\n", test)
+		}
 	}
 	if rng.IntN(2) == 0 {
 		b.WriteString("  - choose: {by: aic}\n")
@@ -488,4 +496,11 @@ func TestPropertyRandomPlans(t *testing.T) {
 			}
 		})
 	}
+}
+
+// nested reports whether some model of the levels is nested in another.
+func nested(levels []string) bool {
+	has := func(l string) bool { return slices.Contains(levels, l) }
+	return has("parallel") && len(levels) > 1 || has("constrained") && (has("partial") || has("nonparallel")) ||
+		has("partial") && has("nonparallel") || has("stereotype") && has("nonparallel")
 }

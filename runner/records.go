@@ -56,6 +56,7 @@ type OutcomeDecisions struct {
 	Rules      []RuleJSON         `json:"rules"`
 	Chosen     *string            `json:"chosen"`
 	Choice     string             `json:"choice"`
+	Fallback   bool               `json:"fallback"`
 	Notes      []string           `json:"notes"`
 	Final      map[string]Verdict `json:"final_verdicts"`
 	Overall    []OverallRecord    `json:"overall_fit"`
@@ -119,7 +120,7 @@ func BuildDecisions(r *Result) *Decisions {
 	for _, or := range r.Outcomes {
 		od := OutcomeDecisions{Outcome: or.Outcome.Column, Categories: or.Data.Levels, Counts: or.Data.Counts,
 			RowsRead: or.Data.RowsRead, RowsUsed: or.Data.N, Dropped: nonNilDrops(or.Data.Dropped), NObs: or.Data.NObs(),
-			Choice: or.Choice, Notes: nonNil(or.Notes), Final: map[string]Verdict{}}
+			Choice: or.Choice, Fallback: or.Fallback, Notes: nonNil(or.Notes), Final: map[string]Verdict{}}
 		if or.Design != nil && !or.Design.Trivial() {
 			od.Terms = or.Design.Records()
 		}

@@ -59,6 +59,15 @@ covariance: cluster
 	if findTest(or.Tests[0].Global, "lr").OK != true {
 		t.Errorf("LR test should be computed with frequency weights")
 	}
+	// With sampling weights the plan's LR rule and BIC choice are refused,
+	// naming the comparisons; the Wald rule and TIC run.
+	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(strings.Replace(base, "%s", ", weights: sw, weight_kind: probability", 1)), 0o644)
+	_, err = plan.Load(filepath.Join(dir, "p.yaml"))
+	if err == nil || !strings.Contains(err.Error(), "p.yaml:9:36: rules[0].reject_if_test_rejects.test: the likelihood-ratio test is not defined for 2 of the 2 comparisons") ||
+		!strings.Contains(err.Error(), "p.yaml:10:18: rules[1].choose.by: by: bic assumes a likelihood") {
+		t.Fatalf("sampling weights with lr and bic: %v", err)
+	}
+	base = strings.Replace(strings.Replace(base, "{test: lr,", "{test: wald,", 1), "{by: bic}", "{by: tic}", 1)
 	or = run(", weights: sw, weight_kind: probability")
 	lr := findTest(or.Tests[0].Global, "lr")
 	if lr.OK || !strings.Contains(lr.Reason, "pseudo-likelihood") {
@@ -68,8 +77,13 @@ covariance: cluster
 		t.Errorf("Wald should be computed: %+v", w)
 	}
 	v := verdictOf(or.Rules[0], "cumulative/parallel/logit")
-	if v == nil || !strings.Contains(v.Reason, "the Wald test replaces the likelihood-ratio test") {
+	if v == nil || !strings.Contains(v.Reason, "Wald test against cumulative/nonparallel/logit: chi2(") {
 		t.Errorf("verdict %+v", v)
+	}
+	for _, v := range or.Rules[1].Verdicts {
+		if !strings.Contains(v.Reason, "TIC ") || !strings.Contains(v.Reason, "penalty tr(A^-1 B) = ") {
+			t.Errorf("TIC verdict %+v", v)
+		}
 	}
 }
 

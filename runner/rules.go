@@ -4,23 +4,57 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strings"
 
 	"ordplan/plan"
 	"ordplan/render/numfmt"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 
-// chain is the order of the levels from most to least constrained; each
-// model is tested against the nearest usable fit after it.
-var chain = map[string][]string{
-	LevelParallel:    {LevelConstrained, LevelPartial, LevelNonparallel},
-	LevelConstrained: {LevelPartial, LevelNonparallel},
-	LevelPartial:     {LevelNonparallel},
-	LevelStereotype:  {LevelNonparallel},
+// ruleEnv is what the rules read besides the fits' numbers: predicted
+// probabilities, Takeuchi's criterion, tests between two fits and the
+// labels of a column. The run fills it from the data; tests over hand-made
+// results replace the functions.
+type ruleEnv struct {
+	p  *plan.Plan
+	or *OutcomeResult
+	// probs gives a fit's category probabilities (n x J) at rows X
+	// (n x K) with offsets off (nil: none).
+	probs func(f *FitEntry, X, off []float64) ([]float64, error)
+	// tic gives a fit's TIC and its penalty tr(A^-1 B).
+	tic func(f *FitEntry) (float64, float64, error)
+	// test computes the named test of restricted against full.
+	test func(kind string, restricted, full *FitEntry) fit.Test
+	// labels gives, for each row used, the value of a data column.
+	labels func(col string) ([]string, error)
+
+	probCache map[string][]float64
+	ticCache  map[*FitEntry][3]float64
+}
+
+func newRuleEnv(p *plan.Plan, or *OutcomeResult) *ruleEnv {
+	env := &ruleEnv{p: p, or: or, probCache: map[string][]float64{}, ticCache: map[*FitEntry][3]float64{}}
+	env.probs = func(f *FitEntry, X, off []float64) ([]float64, error) { return f.Result.Probabilities(X, off) }
+	env.tic = func(f *FitEntry) (float64, float64, error) {
+		return fit.TIC(or.FitData, f.Result, p.Data.Sampling())
+	}
+	var brant *fit.BrantResult
+	env.test = func(kind string, f, full *FitEntry) fit.Test {
+		if kind == "brant" && brant == nil {
+			brant = fit.Brant(or.FitData, fit.Options{Workers: 1})
+		}
+		return pairTest(kind, or.FitData, brant, f, full)
+	}
+	env.labels = func(col string) ([]string, error) { return columnLabels(or, col) }
+	return env
 }
 
 // applyRules runs the plan's rules in order over the candidate fits.
-func applyRules(p *plan.Plan, or *OutcomeResult) {
+func applyRules(p *plan.Plan, or *OutcomeResult) { newRuleEnv(p, or).apply() }
+
+func (env *ruleEnv) apply() {
+	or := env.or
 	var alive []*FitEntry
 	for _, f := range or.Fits {
 		if f.Auxiliary {
@@ -34,17 +68,16 @@ func applyRules(p *plan.Plan, or *OutcomeResult) {
 		}
 		alive = append(alive, f)
 	}
-	for _, r := range p.Rules {
-		ro := &RuleOutcome{Rule: r, Description: describeRule(r)}
-		var next []*FitEntry
-		switch r.Kind {
-		case plan.RuleChoose, plan.RulePreferSimpler:
-			chooseModel(r, or, alive, ro)
-			or.Rules = append(or.Rules, ro)
+	for _, r := range env.p.Rules {
+		ro := &RuleOutcome{Rule: r, Description: DescribeRule(env.p, r)}
+		or.Rules = append(or.Rules, ro)
+		if r.Final() {
+			env.choose(r, alive, ro)
 			return
 		}
+		var next []*FitEntry
 		for _, f := range alive {
-			keep, why := judge(r, p, or, f)
+			keep, why := env.judge(r, f, alive)
 			ro.Verdicts = append(ro.Verdicts, Verdict{Model: f.ID, Kept: keep, Reason: why})
 			if keep {
 				next = append(next, f)
@@ -54,53 +87,123 @@ func applyRules(p *plan.Plan, or *OutcomeResult) {
 			}
 		}
 		alive = next
-		or.Rules = append(or.Rules, ro)
 	}
 	or.Choice = "the plan has no choosing rule"
 }
 
-func describeRule(r plan.Rule) string {
+// DescribeRules lists the plan's rules in plain words, as they will be
+// applied, with the comparisons each test rule makes.
+func DescribeRules(p *plan.Plan) []string {
+	var out []string
+	for i, r := range p.Rules {
+		s := fmt.Sprintf("%d. (line %d) %s", i+1, r.Line, DescribeRule(p, r))
+		if r.Kind == plan.RuleRejectIfTestRejects {
+			var pairs []string
+			for _, tp := range p.TestPairs(r) {
+				pairs = append(pairs, tp.String())
+			}
+			s += " Comparisons: " + strings.Join(pairs, "; ") + "."
+		}
+		out = append(out, s)
+	}
+	return out
+}
+
+// DescribeRule says what a rule does, in plain words.
+func DescribeRule(p *plan.Plan, r plan.Rule) string {
 	switch r.Kind {
 	case plan.RuleRejectUnconverged:
 		return "Reject fits that did not converge or whose likelihood has no finite maximum."
 	case plan.RuleRejectNegativeProbabilities:
 		return "Reject fits that predict a negative category probability for some row of the data."
 	case plan.RuleRejectIfTestRejects:
-		return fmt.Sprintf("Reject a model when the %s test against the nearest less constrained fitted model of the same approach and link rejects it at alpha = %g.", testName(r.Test), r.Alpha)
-	case plan.RuleChoose:
-		return fmt.Sprintf("Choose the model with the smallest %s; models within %g of it count as tied and the one with fewer parameters wins.", upper(r.By), r.Margin)
-	case plan.RulePreferSimpler:
-		return fmt.Sprintf("Among models within %g %s of the smallest, choose the one with the fewest parameters (then the smaller %s).", r.Margin, upper(r.By), upper(r.By))
+		against := map[string]string{
+			plan.AgainstLeast: "the least constrained model of its approach and link",
+			plan.AgainstNext:  "the next less constrained model of its approach and link",
+			plan.AgainstEach:  "each less constrained model of its approach and link in turn (rejected if any test rejects)",
+		}[r.Against]
+		s := fmt.Sprintf("Reject a model when the %s test against %s rejects it at alpha = %g.", plan.TestName(r.Test), against, r.Alpha)
+		if r.AppliesTo != nil {
+			s += " Only models with " + strings.Join(r.AppliesTo, " or ") + " effects are tested."
+		}
+		s += " A model whose comparison model has no usable fit is kept, untested, and the log says so."
+		return s
+	case plan.RuleRejectIfSimplerIsClose:
+		where := "over the rows used"
+		if r.Grid != nil {
+			var ax []string
+			for _, a := range r.Grid {
+				ax = append(ax, a.Predictor+" in {"+joinNums(a.Values)+"}")
+			}
+			where = "over the grid " + strings.Join(ax, " x ") + " (other numeric columns at their means, categorical ones at their reference level)"
+		}
+		return fmt.Sprintf("Reject a model when a simpler model of the same approach and link, still kept, predicts every category probability within %g of it %s.", r.MaxDifference, where)
+	case plan.RuleRejectIfSparse:
+		var parts []string
+		if r.PerParameter > 0 {
+			parts = append(parts, fmt.Sprintf("it has fewer than %g observations per parameter", r.PerParameter))
+		}
+		if r.SmallestCategory > 0 {
+			s := fmt.Sprintf("some outcome category has fewer than %g observations", r.SmallestCategory)
+			if r.Within != "" {
+				s += fmt.Sprintf(" within a value of %s (checked for models in which %s has an effect that varies across equations, or for every model when %s is not a predictor)", r.Within, r.Within, r.Within)
+			}
+			parts = append(parts, s)
+		}
+		unit := "observations are the sum of the frequency weights"
+		if p.Data.Weights == "" {
+			unit = "observations are the rows used"
+		} else if p.Data.Sampling() {
+			unit = "with sampling weights, observations are the rows used"
+		}
+		return "Reject a model when " + strings.Join(parts, ", or when ") + " (" + unit + ")."
+	case plan.RuleRejectIfUnstable:
+		var parts []string
+		if r.MaxCondition > 0 {
+			parts = append(parts, fmt.Sprintf("the condition number of its information (scaled to unit diagonal) exceeds %g", r.MaxCondition))
+		}
+		if r.MinStartsAgreeing > 0 {
+			parts = append(parts, fmt.Sprintf("its constrained search reached the best value from fewer than %d starts (models without constrained effects have one search and pass)", r.MinStartsAgreeing))
+		}
+		return "Reject a model when " + strings.Join(parts, ", or when ") + "."
+	case plan.RuleChoose, plan.RulePreferSimpler:
+		var s string
+		if r.Kind == plan.RuleChoose {
+			s = fmt.Sprintf("Choose the model with the smallest %s; models within %g of it count as tied and the one with fewer parameters wins.", criterionName(r.By), r.Margin)
+		} else {
+			s = fmt.Sprintf("Among models within %g %s of the smallest, choose the one with the fewest parameters (then the smaller %s).", r.Margin, criterionName(r.By), criterionName(r.By))
+		}
+		if r.Otherwise == plan.OtherwiseStop {
+			return s + " If every candidate has been rejected, choose nothing and stop with an error."
+		}
+		return s + " If every candidate has been rejected, report the fallback " + r.Otherwise + ", marked as such."
 	}
 	return r.Kind
 }
 
-func upper(s string) string {
+func joinNums(xs []float64) string {
+	s := make([]string, len(xs))
+	for i, x := range xs {
+		s[i] = numfmt.Num(x)
+	}
+	return strings.Join(s, ", ")
+}
+
+func criterionName(s string) string {
 	switch s {
 	case "aic":
 		return "AIC"
 	case "bic":
 		return "BIC"
+	case "tic":
+		return "TIC"
 	}
 	return s
 }
 
-func testName(t string) string {
-	switch t {
-	case "lr":
-		return "likelihood-ratio"
-	case "wald":
-		return "Wald"
-	case "score":
-		return "score"
-	case "brant":
-		return "Brant"
-	}
-	return t
-}
-
-// judge applies one rejecting rule to one fit.
-func judge(r plan.Rule, p *plan.Plan, or *OutcomeResult, f *FitEntry) (bool, string) {
+// judge applies one rejecting rule to one fit; alive are the models the
+// rule applies to.
+func (env *ruleEnv) judge(r plan.Rule, f *FitEntry, alive []*FitEntry) (bool, string) {
 	res := f.Result
 	switch r.Kind {
 	case plan.RuleRejectUnconverged:
@@ -119,104 +222,512 @@ func judge(r plan.Rule, p *plan.Plan, or *OutcomeResult, f *FitEntry) (bool, str
 			return true, "probabilities of this approach are never negative"
 		}
 		return true, "no row has a negative predicted category probability"
+	case plan.RuleRejectIfSparse:
+		return env.judgeSparse(r, f)
+	}
+	if !res.OK() {
+		return true, fmt.Sprintf("not judged: status %s, no usable estimates (an earlier reject_unconverged rule would reject it)", res.Status)
+	}
+	switch r.Kind {
 	case plan.RuleRejectIfTestRejects:
-		return judgeTest(r, p, or, f)
+		return env.judgeTest(r, f)
+	case plan.RuleRejectIfSimplerIsClose:
+		return env.judgeClose(r, f, alive)
+	case plan.RuleRejectIfUnstable:
+		return judgeUnstable(r, res)
 	}
 	return true, "rule does not apply"
 }
 
-func judgeTest(r plan.Rule, p *plan.Plan, or *OutcomeResult, f *FitEntry) (bool, string) {
-	var nb *FitEntry
-	for _, lv := range chain[f.Level] {
-		if c := or.Find(f.Approach + "/" + lv + "/" + f.Link); c.OK() {
-			nb = c
-			break
+// gridEffects is the plan's Models restricted to the candidate effects of
+// one approach and link that are in the grid of fits.
+func (env *ruleEnv) gridEffects(approach, link string) plan.Models {
+	m := env.p.Models
+	m.Levels = nil
+	for _, f := range env.or.Fits {
+		if !f.Auxiliary && f.Approach == approach && f.Link == link {
+			m.Levels = append(m.Levels, f.Level)
 		}
 	}
-	if nb == nil {
-		if len(chain[f.Level]) == 0 {
-			return true, "no less constrained model to test against"
-		}
-		return true, "no less constrained model of this approach and link has a usable fit, so the test cannot be computed"
-	}
-	kind, note0 := r.Test, ""
-	if probabilityWeights(p) && kind != "wald" {
-		kind, note0 = "wald", fmt.Sprintf(" (probability weights: the Wald test replaces the %s test)", testName(r.Test))
-	}
-	t, note := ruleTest(kind, or, f, nb)
-	note = note0 + note
-	if probabilityWeights(p) && t.Name == "lr" {
-		t = missingTest("wald", "the Wald test is not defined for this pair and likelihood-ratio tests are not valid with probability weights")
-	}
-	if !t.OK {
-		return true, fmt.Sprintf("the %s test against %s cannot be computed (%s)%s", testName(t.Name), nb.ID, t.Reason, note)
-	}
-	stat := fmt.Sprintf("%s test against %s: chi2(%d) = %s, %s%s", testName(t.Name), nb.ID, t.DF, numfmt.Stat(t.Chi2), numfmt.PText(t.P), note)
-	if t.P < r.Alpha {
-		return false, stat + fmt.Sprintf(" < %g", r.Alpha)
-	}
-	return true, stat
+	return m
 }
 
-// ruleTest computes the test a rule asks for between a model and its less
-// constrained neighbour, falling back to the likelihood-ratio test (and
-// saying so) where the asked test is not defined.
-func ruleTest(kind string, or *OutcomeResult, f, nb *FitEntry) (fit.Test, string) {
-	hasConstrained := len(f.Spec.Groups) > 0 || len(nb.Spec.Groups) > 0
-	switch kind {
-	case "wald":
-		if !hasConstrained {
-			var vars []string
-			for k, e := range nb.Result.Model.Effects {
-				if e == fit.Nonparallel && f.Result.Model.Effects[k] == fit.Parallel {
-					vars = append(vars, f.Result.Predictors[k])
-				}
-			}
-			return fit.WaldEqualSlopes(nb.Result, vars), ""
-		}
-	case "score":
-		if !hasConstrained {
-			return fit.ScoreTest(or.FitData, f.Result, nb.Result.Model), ""
-		}
-	case "brant":
-		if f.Approach == "cumulative" && f.Link == "logit" && f.Level == LevelParallel && nb.Level == LevelNonparallel {
-			br := fit.Brant(or.FitData, fit.Options{Workers: 1})
-			if !br.OK {
-				return missingTest("brant", br.Reason), ""
-			}
-			return br.Omnibus, ""
-		}
-	case "lr":
-		return fit.LRTest(f.Result, nb.Result), ""
+func (env *ruleEnv) judgeTest(r plan.Rule, f *FitEntry) (bool, string) {
+	if r.AppliesTo != nil && !contains(r.AppliesTo, f.Level) {
+		return true, fmt.Sprintf("not tested: the rule applies only to %s effects", strings.Join(r.AppliesTo, ", "))
 	}
-	return fit.LRTest(f.Result, nb.Result), fmt.Sprintf(" (the %s test is not defined for this pair; likelihood-ratio used)", testName(kind))
-}
-
-// chooseModel applies the final rule: smallest criterion, with a margin
-// within which fewer parameters win.
-func chooseModel(r plan.Rule, or *OutcomeResult, alive []*FitEntry, ro *RuleOutcome) {
-	crit := func(f *FitEntry) float64 {
-		if !f.OK() {
-			return math.NaN()
-		}
-		if r.By == "aic" {
-			return f.Result.AIC
-		}
-		return f.Result.BIC
+	targets := r.TestTargets(env.gridEffects(f.Approach, f.Link), f.Approach, f.Level)
+	if len(targets) == 0 {
+		return true, "no less constrained model of this approach and link in the grid"
 	}
-	var usable []*FitEntry
-	for _, f := range alive {
-		if math.IsNaN(crit(f)) {
-			ro.Verdicts = append(ro.Verdicts, Verdict{Model: f.ID, Kept: false, Reason: fmt.Sprintf("no %s: status %s", upper(r.By), f.Result.Status)})
-			f.Verdict, f.Rejected = "rejected", fmt.Sprintf("%s (rule at line %d): no %s (status %s)", r.Kind, r.Line, upper(r.By), f.Result.Status)
+	var parts []string
+	rejected := false
+	for _, t := range targets {
+		full := env.or.Find(f.Approach + "/" + t + "/" + f.Link)
+		if !full.OK() {
+			status := "not fitted"
+			if full != nil && full.Result != nil {
+				status = "status " + string(full.Result.Status)
+			} else if full != nil && full.Err != "" {
+				status = full.Err
+			}
+			parts = append(parts, fmt.Sprintf("not tested against %s: it has no usable fit (%s)", full.idOr(f.Approach+"/"+t+"/"+f.Link), status))
 			continue
 		}
+		if ok, why := plan.TestDefined(r.Test, f.Approach, f.Link, f.Level, t, env.p.Data.Sampling()); !ok {
+			// The plan check refuses such rules; this guards a plan built
+			// in code.
+			parts = append(parts, fmt.Sprintf("not tested against %s: %s", full.ID, why))
+			continue
+		}
+		tt := env.test(r.Test, f, full)
+		if !tt.OK {
+			parts = append(parts, fmt.Sprintf("the %s test against %s cannot be computed (%s)", plan.TestName(r.Test), full.ID, tt.Reason))
+			continue
+		}
+		s := fmt.Sprintf("%s test against %s: chi2(%d) = %s, %s", plan.TestName(r.Test), full.ID, tt.DF, numfmt.Stat(tt.Chi2), pText(tt.P, r.Alpha))
+		if tt.P < r.Alpha {
+			s += fmt.Sprintf(" < alpha %g", r.Alpha)
+			rejected = true
+		} else {
+			s += fmt.Sprintf(" >= alpha %g", r.Alpha)
+		}
+		parts = append(parts, s)
+	}
+	return !rejected, strings.Join(parts, "; ")
+}
+
+// pText writes a p-value the report's way, adding its exact value where
+// rounding hides how it compares with alpha.
+func pText(p, alpha float64) string {
+	s := numfmt.PText(p)
+	if p < 1e-4 || math.Abs(p-alpha) < 5e-5 {
+		s += " (exactly " + numfmt.Num(p) + ")"
+	}
+	return s
+}
+
+func (f *FitEntry) idOr(id string) string {
+	if f == nil {
+		return id
+	}
+	return f.ID
+}
+
+func contains(xs []string, x string) bool {
+	for _, y := range xs {
+		if y == x {
+			return true
+		}
+	}
+	return false
+}
+
+// pairTest computes the named test of restricted against full; the plan
+// check has made sure it is defined for the pair.
+func pairTest(kind string, d *fit.Data, brant *fit.BrantResult, f, full *FitEntry) fit.Test {
+	switch kind {
+	case "wald":
+		var vars []string
+		for k, e := range full.Result.Model.Effects {
+			if e == fit.Nonparallel && f.Result.Model.Effects[k] == fit.Parallel {
+				vars = append(vars, f.Result.Predictors[k])
+			}
+		}
+		return fit.WaldEqualSlopes(full.Result, vars)
+	case "score":
+		return fit.ScoreTest(d, f.Result, full.Result.Model)
+	case "brant":
+		if brant == nil || !brant.OK {
+			reason := "not computed"
+			if brant != nil {
+				reason = brant.Reason
+			}
+			return missingTest("brant", reason)
+		}
+		return brant.Omnibus
+	case "lr":
+		return fit.LRTest(f.Result, full.Result)
+	}
+	return missingTest(kind, "unknown test")
+}
+
+// judgeClose rejects a model when a simpler kept model of its approach and
+// link predicts every category probability within the rule's amount.
+func (env *ruleEnv) judgeClose(r plan.Rule, f *FitEntry, alive []*FitEntry) (bool, string) {
+	var simpler []*FitEntry
+	for _, s := range alive {
+		if s != f && s.Approach == f.Approach && s.Link == f.Link && s.OK() && contains(lessConstrainedOf(s.Level), f.Level) {
+			simpler = append(simpler, s)
+		}
+	}
+	if len(simpler) == 0 {
+		return true, "no simpler model of this approach and link is still kept"
+	}
+	X, off, where, err := env.points(r)
+	if err != nil {
+		return true, "not judged: " + err.Error()
+	}
+	pf, err := env.cachedProbs(f, X, off)
+	if err != nil {
+		return true, "not judged: " + err.Error()
+	}
+	J := env.or.FitData.J
+	var parts []string
+	close := false
+	for _, s := range simpler {
+		ps, err := env.cachedProbs(s, X, off)
+		if err != nil {
+			parts = append(parts, fmt.Sprintf("not compared with %s: %v", s.ID, err))
+			continue
+		}
+		best, at := -1.0, 0
+		for i := range pf {
+			if d := math.Abs(pf[i] - ps[i]); d > best {
+				best, at = d, i
+			}
+		}
+		cat := env.or.FitData.Levels
+		label := fmt.Sprint(at%J + 1)
+		if len(cat) == J {
+			label = cat[at%J]
+		}
+		s := fmt.Sprintf("largest difference from %s in a predicted category probability %s: %s (category %s at %s)", s.ID, where.desc, numfmt.Num(best), label, where.point(at/J))
+		if best < r.MaxDifference {
+			s += fmt.Sprintf(" < %g, the simpler model suffices", r.MaxDifference)
+			close = true
+		} else {
+			s += fmt.Sprintf(" >= %g", r.MaxDifference)
+		}
+		parts = append(parts, s)
+	}
+	return !close, strings.Join(parts, "; ")
+}
+
+func lessConstrainedOf(e string) []string {
+	m := plan.Models{Levels: []string{LevelParallel, LevelConstrained, LevelPartial, LevelStereotype, LevelNonparallel}}
+	return plan.Rule{Against: plan.AgainstEach}.TestTargets(m, "adjacent", e)
+}
+
+// pointSet names the points predictions are compared at.
+type pointSet struct {
+	desc  string
+	point func(i int) string
+}
+
+// points gives the rows (X, offsets) where a closeness rule compares
+// predictions: the rows used, or the rule's grid with the other predictors
+// (and the offset) at their weighted means.
+func (env *ruleEnv) points(r plan.Rule) ([]float64, []float64, pointSet, error) {
+	d := env.or.FitData
+	if r.Grid == nil {
+		lines := env.or.Data.Lines
+		return d.X, d.Offset, pointSet{desc: fmt.Sprintf("over the %d rows used", d.N()), point: func(i int) string {
+			if i < len(lines) {
+				return fmt.Sprintf("the row on line %d of the data file", lines[i])
+			}
+			return fmt.Sprintf("row %d", i+1)
+		}}, nil
+	}
+	// Raw rows: every source at its mean (numeric) or reference level
+	// (categorical), then the grid's values; the design maps them to the
+	// fit's columns.
+	dz := env.or.Design
+	base := env.or.representative(nil, false)
+	S := len(base)
+	idx := make([]int, len(r.Grid))
+	for a, ax := range r.Grid {
+		idx[a] = dz.Source(ax.Predictor)
+		if idx[a] < 0 {
+			return nil, nil, pointSet{}, fmt.Errorf("grid column %q is not read by the predictors", ax.Predictor)
+		}
+		if dz.Sources[idx[a]].Cat != nil {
+			return nil, nil, pointSet{}, fmt.Errorf("grid column %q is categorical; the grid takes numeric columns", ax.Predictor)
+		}
+	}
+	n := 1
+	for _, ax := range r.Grid {
+		n *= len(ax.Values)
+	}
+	raw := make([]float64, 0, n*S)
+	labels := make([]string, 0, n)
+	for i := 0; i < n; i++ {
+		x := append([]float64(nil), base...)
+		rest := i
+		var lab []string
+		for a := len(r.Grid) - 1; a >= 0; a-- {
+			ax := r.Grid[a]
+			v := ax.Values[rest%len(ax.Values)]
+			rest /= len(ax.Values)
+			x[idx[a]] = v
+			lab = append([]string{ax.Predictor + " = " + numfmt.Num(v)}, lab...)
+		}
+		raw = append(raw, x...)
+		labels = append(labels, strings.Join(lab, ", "))
+	}
+	X, bad, err := dz.Matrix(raw, n)
+	if err != nil {
+		return nil, nil, pointSet{}, fmt.Errorf("grid point %s: %v", labels[bad], err)
+	}
+	var off []float64
+	if d.Offset != nil {
+		m := weightedMean(d.Offset, d.Weights)
+		off = make([]float64, n)
+		for i := range off {
+			off[i] = m
+		}
+	}
+	return X, off, pointSet{desc: fmt.Sprintf("over the %d grid points", n), point: func(i int) string { return labels[i] }}, nil
+}
+
+func (env *ruleEnv) cachedProbs(f *FitEntry, X, off []float64) ([]float64, error) {
+	key := fmt.Sprintf("%s|%p", f.ID, X)
+	if p, ok := env.probCache[key]; ok {
+		return p, nil
+	}
+	p, err := env.probs(f, X, off)
+	if err == nil {
+		env.probCache[key] = p
+	}
+	return p, err
+}
+
+// judgeSparse applies the minimum-information rule.
+func (env *ruleEnv) judgeSparse(r plan.Rule, f *FitEntry) (bool, string) {
+	or := env.or
+	var parts []string
+	keep := true
+	nobs := or.Data.NObs()
+	unit := "observations"
+	if env.p.Data.Sampling() {
+		nobs, unit = float64(or.Data.N), "rows"
+	}
+	if r.PerParameter > 0 {
+		np := f.Result.NParams
+		per := nobs / float64(np)
+		s := fmt.Sprintf("%s %s for %d parameters: %s per parameter", numfmt.Num(nobs), unit, np, numfmt.Num(per))
+		if per < r.PerParameter {
+			s += fmt.Sprintf(" < %g", r.PerParameter)
+			keep = false
+		} else {
+			s += fmt.Sprintf(" >= %g", r.PerParameter)
+		}
+		parts = append(parts, s)
+	}
+	if r.SmallestCategory > 0 {
+		s, ok := env.smallestCategory(r, f)
+		parts = append(parts, s)
+		keep = keep && ok
+	}
+	return keep, strings.Join(parts, "; ")
+}
+
+// smallestCategory checks the smallest outcome category count, overall or
+// within each value of the rule's column.
+func (env *ruleEnv) smallestCategory(r plan.Rule, f *FitEntry) (string, bool) {
+	or := env.or
+	ds := or.Data
+	levels := ds.Levels
+	weight := func(i int) float64 {
+		if ds.Weights == nil || env.p.Data.Sampling() {
+			return 1
+		}
+		return ds.Weights[i]
+	}
+	if r.Within == "" {
+		counts := make([]float64, len(levels))
+		for i, y := range ds.Y {
+			counts[y] += weight(i)
+		}
+		j := argmin(counts)
+		s := fmt.Sprintf("smallest category count %s (category %s)", numfmt.Num(counts[j]), levels[j])
+		if counts[j] < r.SmallestCategory {
+			return s + fmt.Sprintf(" < %g", r.SmallestCategory), false
+		}
+		return s + fmt.Sprintf(" >= %g", r.SmallestCategory), true
+	}
+	if cols := env.columnsReading(r.Within); cols != nil && !varyingEffect(f.Result, cols) {
+		return fmt.Sprintf("the effect of %s is the same in every equation of this model, so counts within its values do not limit it", r.Within), true
+	}
+	labels, err := env.labels(r.Within)
+	if err != nil {
+		return "not judged: " + err.Error(), true
+	}
+	byValue := map[string][]float64{}
+	for i, y := range ds.Y {
+		c := byValue[labels[i]]
+		if c == nil {
+			c = make([]float64, len(levels))
+			byValue[labels[i]] = c
+		}
+		c[y] += weight(i)
+	}
+	values := make([]string, 0, len(byValue))
+	for v := range byValue {
+		values = append(values, v)
+	}
+	sort.Strings(values)
+	minV, minJ, minC := "", 0, math.Inf(1)
+	for _, v := range values {
+		c := byValue[v]
+		if j := argmin(c); c[j] < minC {
+			minV, minJ, minC = v, j, c[j]
+		}
+	}
+	s := fmt.Sprintf("smallest category count within the %d values of %s: %s (category %s at %s = %s)", len(values), r.Within, numfmt.Num(minC), levels[minJ], r.Within, minV)
+	if minC < r.SmallestCategory {
+		return s + fmt.Sprintf(" < %g", r.SmallestCategory), false
+	}
+	return s + fmt.Sprintf(" >= %g", r.SmallestCategory), true
+}
+
+func argmin(xs []float64) int {
+	j := 0
+	for i, x := range xs {
+		if x < xs[j] {
+			j = i
+		}
+	}
+	return j
+}
+
+func indexOf(xs []string, x string) int {
+	for i, y := range xs {
+		if y == x {
+			return i
+		}
+	}
+	return -1
+}
+
+// columnsReading gives the fit columns whose terms read the data column
+// col, or nil when no predictor reads it.
+func (env *ruleEnv) columnsReading(col string) []string {
+	dz := env.or.Design
+	if dz == nil {
+		if indexOf(env.or.FitData.Predictors, col) >= 0 {
+			return []string{col}
+		}
+		return nil
+	}
+	var out []string
+	for k, t := range dz.Terms {
+		if contains(dz.TermSources(k), col) {
+			out = append(out, t.Columns...)
+		}
+	}
+	return out
+}
+
+// varyingEffect reports whether any of the columns has an effect that
+// differs between the equations of a model (nonparallel or constrained).
+func varyingEffect(r *fit.Result, cols []string) bool {
+	for _, c := range cols {
+		k := indexOf(r.Predictors, c)
+		if k >= 0 && k < len(r.Model.Effects) && r.Model.Effects[k] != fit.Parallel {
+			return true
+		}
+	}
+	return false
+}
+
+// columnLabels gives the value of a data column for each row used: the
+// level of a categorical predictor, the number of a numeric one, or the
+// text of any other column (read again from the file; a missing value is
+// the label "(missing)").
+func columnLabels(or *OutcomeResult, col string) ([]string, error) {
+	ds := or.Data
+	if dz := or.Design; dz != nil {
+		if s := dz.Source(col); s >= 0 {
+			S := len(dz.Sources)
+			out := make([]string, ds.N)
+			for i := range out {
+				v := ds.X[i*S+s]
+				if c := dz.Sources[s].Cat; c != nil {
+					out[i] = c.Levels[int(v)]
+				} else {
+					out[i] = numfmt.Num(v)
+				}
+			}
+			return out, nil
+		}
+	}
+	opt := or.dataOptions
+	opt.Cluster = col
+	opt.Refuse = false
+	ds2, err := data.Load(ds.File, opt)
+	if err != nil {
+		return nil, fmt.Errorf("reading column %q: %v", col, err)
+	}
+	at := make(map[int]string, len(ds2.Lines))
+	for i, l := range ds2.Lines {
+		at[l] = ds2.Cluster[i]
+	}
+	out := make([]string, len(ds.Lines))
+	for i, l := range ds.Lines {
+		v, ok := at[l]
+		if !ok {
+			v = "(missing)"
+		}
+		out[i] = v
+	}
+	return out, nil
+}
+
+// judgeUnstable applies the fit-quality rule.
+func judgeUnstable(r plan.Rule, res *fit.Result) (bool, string) {
+	var parts []string
+	keep := true
+	if r.MaxCondition > 0 {
+		s := fmt.Sprintf("information condition %s", numfmt.Num(res.Condition))
+		if !(res.Condition <= r.MaxCondition) {
+			s += fmt.Sprintf(" > %g", r.MaxCondition)
+			keep = false
+		} else {
+			s += fmt.Sprintf(" <= %g", r.MaxCondition)
+		}
+		parts = append(parts, s)
+	}
+	if r.MinStartsAgreeing > 0 {
+		if len(res.Starts) == 0 {
+			parts = append(parts, "one search (no constrained effects), so no starts to agree")
+		} else {
+			s := fmt.Sprintf("best value reached from %d of %d starts", res.StartsAgreeing, len(res.Starts))
+			if res.StartsAgreeing < r.MinStartsAgreeing {
+				s += fmt.Sprintf(" < %d", r.MinStartsAgreeing)
+				keep = false
+			} else {
+				s += fmt.Sprintf(" >= %d", r.MinStartsAgreeing)
+			}
+			parts = append(parts, s)
+		}
+	}
+	return keep, strings.Join(parts, "; ")
+}
+
+// choose applies the final rule: smallest criterion, with a margin within
+// which fewer parameters win; when nothing is left, the plan's fallback or
+// nothing.
+func (env *ruleEnv) choose(r plan.Rule, alive []*FitEntry, ro *RuleOutcome) {
+	or := env.or
+	by := criterionName(r.By)
+	vals := map[*FitEntry]float64{}
+	var usable []*FitEntry
+	for _, f := range alive {
+		c, note := env.criterion(r.By, f)
+		if math.IsNaN(c) {
+			ro.Verdicts = append(ro.Verdicts, Verdict{Model: f.ID, Kept: false, Reason: fmt.Sprintf("no %s: %s", by, note)})
+			f.Verdict, f.Rejected = "rejected", fmt.Sprintf("%s (rule at line %d): no %s (%s)", r.Kind, r.Line, by, note)
+			continue
+		}
+		vals[f] = c
 		usable = append(usable, f)
 	}
 	if len(usable) == 0 {
-		or.Choice = "no model survived the rules, so none was chosen"
+		env.fallback(r, ro)
 		return
 	}
+	crit := func(f *FitEntry) float64 { return vals[f] }
 	best := math.Inf(1)
 	for _, f := range usable {
 		best = math.Min(best, crit(f))
@@ -239,7 +750,6 @@ func chooseModel(r plan.Rule, or *OutcomeResult, alive []*FitEntry, ro *RuleOutc
 		return crit(tied[i]) < crit(tied[j])-tol
 	})
 	chosen := tied[0]
-	by := upper(r.By)
 	for _, f := range usable {
 		c := crit(f)
 		v := Verdict{Model: f.ID}
@@ -251,9 +761,20 @@ func chooseModel(r plan.Rule, or *OutcomeResult, alive []*FitEntry, ro *RuleOutc
 				v.Reason += fmt.Sprintf("; %d models within the margin %g, this one has the fewest parameters", len(tied), r.Margin)
 			}
 		case c <= best+r.Margin+tol:
-			v.Reason = fmt.Sprintf("within the margin (%s %s, %+.3f) but %d parameters, more than %d", by, numfmt.Fixed(c, 3), c-best, f.Result.NParams, chosen.Result.NParams)
+			v.Reason = fmt.Sprintf("within the margin (%s %s, %+.3f) but ", by, numfmt.Fixed(c, 3), c-best)
+			switch k, kc := f.Result.NParams, chosen.Result.NParams; {
+			case k > kc:
+				v.Reason += fmt.Sprintf("%d parameters, more than %d", k, kc)
+			case c > crit(chosen)+tol:
+				v.Reason += fmt.Sprintf("%d parameters like %s, whose %s is smaller", k, chosen.ID, by)
+			default:
+				v.Reason += fmt.Sprintf("%d parameters and the same %s as %s, which comes first in the plan's grid", k, by, chosen.ID)
+			}
 		default:
 			v.Reason = fmt.Sprintf("%s %s is %.3f above the smallest (margin %g)", by, numfmt.Fixed(c, 3), c-best, r.Margin)
+		}
+		if note := env.criterionNote(r.By, f); note != "" {
+			v.Reason += "; " + note
 		}
 		ro.Verdicts = append(ro.Verdicts, v)
 		if f != chosen {
@@ -265,6 +786,63 @@ func chooseModel(r plan.Rule, or *OutcomeResult, alive []*FitEntry, ro *RuleOutc
 	or.Choice = fmt.Sprintf("%s: %s", chosen.ID, ro.Verdicts[indexVerdict(ro.Verdicts, chosen.ID)].Reason)
 }
 
+// fallback handles a final rule with no candidate left.
+func (env *ruleEnv) fallback(r plan.Rule, ro *RuleOutcome) {
+	or := env.or
+	if r.Otherwise == plan.OtherwiseStop || r.Otherwise == "" {
+		or.Choice = "no model chosen: every candidate was rejected, and the plan says to stop (otherwise: stop)"
+		return
+	}
+	fb := or.Find(r.Otherwise)
+	if !fb.OK() {
+		status := "it was not fitted"
+		if fb != nil && fb.Result != nil {
+			status = "status " + string(fb.Result.Status)
+		} else if fb != nil && fb.Err != "" {
+			status = fb.Err
+		}
+		or.Choice = fmt.Sprintf("no model chosen: every candidate was rejected, and the plan's fallback %s has no usable fit (%s)", r.Otherwise, status)
+		return
+	}
+	why := fmt.Sprintf("fallback: every candidate was rejected, so the plan's fallback model is reported (%d parameters, log-likelihood %s); it was %s", fb.Result.NParams, numfmt.Fixed(fb.Result.LogLik, 3), fb.Rejected)
+	ro.Verdicts = append(ro.Verdicts, Verdict{Model: fb.ID, Kept: true, Reason: why})
+	fb.Verdict = "chosen"
+	fb.Rejected = ""
+	or.Chosen, or.Fallback = fb, true
+	or.Choice = fb.ID + ": " + why
+}
+
+// criterion is the value a final rule compares, NaN with a note when the
+// fit has none.
+func (env *ruleEnv) criterion(by string, f *FitEntry) (float64, string) {
+	if !f.OK() {
+		return math.NaN(), "status " + string(f.Result.Status)
+	}
+	switch by {
+	case "aic":
+		return f.Result.AIC, ""
+	case "tic":
+		v, _, err := env.cachedTIC(f)
+		if err != nil {
+			return math.NaN(), err.Error()
+		}
+		return v, ""
+	}
+	return f.Result.BIC, ""
+}
+
+// criterionNote gives the parts of a criterion for the log.
+func (env *ruleEnv) criterionNote(by string, f *FitEntry) string {
+	if by != "tic" {
+		return ""
+	}
+	_, pen, err := env.cachedTIC(f)
+	if err != nil {
+		return ""
+	}
+	return fmt.Sprintf("TIC = -2 log-likelihood + 2 x penalty, penalty tr(A^-1 B) = %s for %d parameters", numfmt.Fixed(pen, 3), f.Result.NParams)
+}
+
 func indexVerdict(vs []Verdict, id string) int {
 	for i, v := range vs {
 		if v.Model == id {
@@ -272,4 +850,15 @@ func indexVerdict(vs []Verdict, id string) int {
 		}
 	}
 	return 0
+}
+
+func (env *ruleEnv) cachedTIC(f *FitEntry) (float64, float64, error) {
+	if c, ok := env.ticCache[f]; ok {
+		return c[0], c[1], nil
+	}
+	v, pen, err := env.tic(f)
+	if err == nil {
+		env.ticCache[f] = [3]float64{v, pen}
+	}
+	return v, pen, err
 }

@@ -37,12 +37,16 @@ func TestRuleRejectUnconverged(t *testing.T) {
 	if v := verdictOf(ro, "cumulative/parallel/logit"); v == nil || !v.Kept {
 		t.Errorf("parallel should be kept: %+v", v)
 	}
-	// The score rule tests parallel against partial (the nonparallel fit
-	// failed), so every survivor gets a verdict with numbers.
+	// The score rule tests parallel against the next less constrained
+	// model, partial; partial's is nonparallel, which has no finite
+	// maximum: partial is kept, untested, and the log says so.
 	for _, v := range or.Rules[1].Verdicts {
-		if !strings.Contains(v.Reason, "chi2(") && !strings.Contains(v.Reason, "no less constrained") {
+		if !strings.Contains(v.Reason, "chi2(") && !strings.Contains(v.Reason, "has no usable fit (status no_finite_maximum)") {
 			t.Errorf("score rule verdict without numbers: %+v", v)
 		}
+	}
+	if v := verdictOf(or.Rules[1], "cumulative/parallel/logit"); v == nil || !strings.Contains(v.Reason, "score test against cumulative/partial/logit: chi2(") {
+		t.Errorf("parallel against partial: %+v", v)
 	}
 	if or.Chosen == nil {
 		t.Fatalf("nothing chosen: %s", or.Choice)
@@ -58,19 +62,41 @@ func TestRuleRejectUnconverged(t *testing.T) {
 	}
 }
 
-// On the General Social Survey extract (Long 1997), the LR rule follows the
-// chain parallel -> constrained -> partial -> nonparallel: the constrained
-// model is rejected against the partial one (chi2(2) = 32.14), the
-// parallel one kept against the constrained one (p = .108).
+// On the General Social Survey extract (Long 1997), the LR rule with
+// against: next_less_constrained follows the chain parallel -> constrained
+// -> partial -> nonparallel: the constrained model is rejected against the
+// partial one (chi2(2) = 32.14), the parallel one kept against the
+// constrained one (p = .108). Tested against the least constrained model
+// (the default), the parallel model is rejected: chi2(12) = 49.20 against
+// the nonparallel one.
 func TestRuleRejectIfTestRejects(t *testing.T) {
-	r := runPlan(t, loadPlan(t, "gss_grid.yaml"), 0)
+	p := loadPlan(t, "gss_grid.yaml")
+	r := runPlan(t, p, 0)
 	or := r.Outcomes[0]
 	ro := or.Rules[2]
 	if v := verdictOf(ro, "cumulative/constrained/logit"); v == nil || v.Kept || !strings.Contains(v.Reason, "chi2(2) = 32.140") {
 		t.Errorf("constrained: %+v", v)
 	}
-	if v := verdictOf(ro, "cumulative/parallel/logit"); v == nil || !v.Kept || !strings.Contains(v.Reason, "p = 0.1082") {
+	if v := verdictOf(ro, "cumulative/parallel/logit"); v == nil || !v.Kept || !strings.Contains(v.Reason, "p = 0.108") {
 		t.Errorf("parallel: %+v", v)
+	}
+	if !strings.Contains(ro.Description, "the next less constrained model") {
+		t.Errorf("description: %s", ro.Description)
+	}
+	// The same plan against the least constrained model. The rules run
+	// again over the same fits.
+	p.Rules[2].Against = plan.AgainstLeast
+	least := &OutcomeResult{Outcome: or.Outcome, Data: or.Data, FitData: or.FitData, Fits: or.Fits}
+	applyRules(p, least)
+	lr := least.Rules[2]
+	if v := verdictOf(lr, "cumulative/parallel/logit"); v == nil || v.Kept || !strings.Contains(v.Reason, "likelihood-ratio test against cumulative/nonparallel/logit: chi2(12) = 49.203") {
+		t.Errorf("parallel against the least constrained: %+v", v)
+	}
+	if !strings.Contains(lr.Description, "the least constrained model of its approach and link") {
+		t.Errorf("description: %s", lr.Description)
+	}
+	if least.Chosen == nil || least.Chosen.Level == LevelParallel {
+		t.Errorf("chosen %v", least.Chosen)
 	}
 	if v := verdictOf(ro, "cumulative/nonparallel/logit"); v == nil || !v.Kept {
 		t.Errorf("nonparallel: %+v", v)

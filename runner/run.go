@@ -45,7 +45,7 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 	}
 	res.Notes = append(res.Notes, fmt.Sprintf("Standard errors from the %s.", covarianceName(covarianceOf(p))))
 	if probabilityWeights(p) {
-		res.Notes = append(res.Notes, "The weights are probability (sampling) weights: the fits maximize a pseudo-likelihood, standard errors are sandwich estimates, likelihood-ratio, score and Brant tests are not valid and are replaced by Wald tests, and AIC/BIC are descriptive only.")
+		res.Notes = append(res.Notes, "The weights are probability (sampling) weights: the fits maximize a pseudo-likelihood, standard errors are sandwich estimates, likelihood-ratio, score and Brant tests are not valid (the plan's test rules use Wald tests, and its choice uses TIC), and AIC/BIC are descriptive only.")
 	}
 	for _, oc := range p.Outcomes {
 		or, err := runOutcome(p, oc, opt, res.DataHash)
@@ -105,7 +105,7 @@ func runOutcome(p *plan.Plan, oc plan.Outcome, opt Options, dataHash string) (*O
 	if err != nil {
 		return nil, err
 	}
-	or := &OutcomeResult{Outcome: oc, Data: ds, FitData: fd, Design: dz, Terms: termsOf(dz)}
+	or := &OutcomeResult{Outcome: oc, Data: ds, FitData: fd, Design: dz, Terms: termsOf(dz), dataOptions: dopt}
 	or.Notes = append(or.Notes, dz.Notes...)
 	if err := fit.CheckDesign(or.FitData); err != nil {
 		return nil, fmt.Errorf("%s: outcome %q: %v", p.Data.File, oc.Column, err)

@@ -35,6 +35,7 @@ type OutcomeResult struct {
 	Rules    []*RuleOutcome
 	Chosen   *FitEntry
 	Choice   string   // why the chosen model was chosen, or why none was
+	Fallback bool     // every candidate was rejected; Chosen is the plan's fallback
 	Notes    []string // models not fitted and why
 
 	Nulls   []*NullRecord   // thresholds-only fit of each approach and link
@@ -42,8 +43,10 @@ type OutcomeResult struct {
 	Lipsitz *fit.Lipsitz    // goodness of fit of the chosen model, by groups of its score
 
 	Hypotheses []HypothesisResult // the plan's hypotheses, per model
-	Marginal   []MarginalSet      // marginal effects of the chosen model
-	NewRows    *NewRows           // predictions for the plan's new rows
+
+	dataOptions data.Options  // how Data was read (rules read further columns the same way)
+	Marginal    []MarginalSet // marginal effects of the chosen model
+	NewRows     *NewRows      // predictions for the plan's new rows
 }
 
 // FreeSet is the set of terms allowed to vary in partial and

@@ -271,7 +271,7 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`P10.yaml:12:36: rules[0].reject_negative_probabilities: applies only to cumulative fits, and models.approaches does not include cumulative`}},
 		{id: "P11", name: "test rule with nothing to compare", args: []string{"check"},
 			plan: edit("[parallel, nonparallel]", "[parallel]", "reject_unconverged: true", "reject_if_test_rejects: {test: lr}"), code: 1,
-			want: []string{`P11.yaml:12:29: rules[0].reject_if_test_rejects: compares neighbouring levels, but models.levels has only one (parallel)`}},
+			want: []string{`P11.yaml:12:29: rules[0].reject_if_test_rejects: tests each model against a less constrained one, but models.levels (parallel) gives no such pair`}},
 		{id: "P12", name: "partial set names no predictor", args: []string{"check"},
 			plan: edit("[parallel, nonparallel]", "[parallel, partial]\n  partial: {free: [a, z]}"), code: 1,
 			want: []string{`P12.yaml:10:23: models.partial.free[1]: "z" is not a predictor (predictors: a, b)`}},
@@ -366,7 +366,9 @@ func catalogue(dir string) (items []badInput) {
 					"models: {approaches: [adjacent], levels: [parallel], links: [cloglog]}\ntests: {parallel_lines: []}\n"+
 					"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\n"), 0o644)
 				outDir := filepath.Join(dir, "M10out")
-				if _, e, code := runCLI("run", p, "--out", outDir, "--quiet"); code != 0 {
+				// The only candidate is rejected, so nothing is chosen: the
+				// run writes its outputs and exits with code 3.
+				if _, e, code := runCLI("run", p, "--out", outDir, "--quiet"); code != exitNoChoice || !strings.Contains(e, "no model chosen: every candidate was rejected") {
 					t.Fatalf("run: exit %d: %s", code, e)
 				}
 				dec, _ := os.ReadFile(filepath.Join(outDir, "decisions.json"))

@@ -20,6 +20,9 @@ const (
 	exitOK    = 0
 	exitFail  = 1 // the input or the analysis failed
 	exitUsage = 2 // the command line is wrong
+	// exitNoChoice: the run finished and wrote its outputs, but for some
+	// outcome every candidate was rejected and the plan names no fallback.
+	exitNoChoice = 3
 )
 
 const usage = `ordplan: analysis plans for ordered outcomes

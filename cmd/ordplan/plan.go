@@ -66,6 +66,10 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 		what = "plan is valid (data file not read)"
 	}
 	fmt.Fprintf(stdout, "%s: %s (%d outcome(s), %d predictors, sha256 %s)\n", p.Path, what, len(p.Outcomes), len(p.Predictors), p.Hash)
+	fmt.Fprintln(stdout, "The rules, in the order they will be applied to the models of each outcome:")
+	for _, s := range runner.DescribeRules(p) {
+		fmt.Fprintln(stdout, "  "+s)
+	}
 	return exitOK
 }
 
@@ -133,18 +137,24 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 		return fail(stderr, err)
 	}
 	fmt.Fprintln(stdout, registrationLine(reg))
+	code = exitOK
 	for _, o := range dec.Outcomes {
-		chosen := "no model chosen"
-		if o.Chosen != nil {
-			chosen = "chosen: " + *o.Chosen
+		switch {
+		case o.Chosen == nil:
+			fmt.Fprintf(stdout, "%s: no model chosen\n", o.Outcome)
+			fmt.Fprintf(stderr, "ordplan: outcome %s: %s\n", o.Outcome, o.Choice)
+			code = exitNoChoice
+		case o.Fallback:
+			fmt.Fprintf(stdout, "%s: fallback: %s (every candidate was rejected)\n", o.Outcome, *o.Chosen)
+		default:
+			fmt.Fprintf(stdout, "%s: chosen: %s\n", o.Outcome, *o.Chosen)
 		}
-		fmt.Fprintf(stdout, "%s: %s\n", o.Outcome, chosen)
 	}
 	for _, c := range changes {
 		fmt.Fprintf(stdout, "change: %s\n", c)
 	}
 	fmt.Fprintf(stdout, "report: %s\n", filepath.Join(dir, "report.html"))
-	return exitOK
+	return code
 }
 
 func isTerminal(f *os.File) bool {

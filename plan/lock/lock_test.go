@@ -113,8 +113,8 @@ func TestInsertedRuleAndListChanges(t *testing.T) {
 	}
 	want := []string{
 		`predictors: ["a", "b"] -> ["a", "b", "c"]`,
-		`rules[2].choose: {"by": "aic", "margin": 0} -> (absent)`,
-		`rules[2].prefer_simpler: (absent) -> {"by": "bic", "margin": 2}`,
+		`rules[2].choose: {"by": "aic", "margin": 0, "otherwise": "stop"} -> (absent)`,
+		`rules[2].prefer_simpler: (absent) -> {"by": "bic", "margin": 2, "otherwise": "stop"}`,
 	}
 	if strings.Join(got, "\n") != strings.Join(want, "\n") {
 		t.Errorf("changes\n%s\nwant\n%s", strings.Join(got, "\n"), strings.Join(want, "\n"))

@@ -19,6 +19,9 @@ type SandwichInfo struct {
 	Clusters int     `json:"clusters,omitempty"`
 	Factor   float64 `json:"small_sample_factor"`
 	Formula  string  `json:"formula"`
+	// Trace is tr(A^-1 B) without the factor: the penalty of Takeuchi's
+	// criterion (see TIC).
+	Trace float64 `json:"-"`
 }
 
 // rowScores calls fn(i, s) with the score of row i in the parameters
@@ -171,6 +174,11 @@ func sandwich(d *Data, r *Result, clusters []string, probability, factor bool) (
 		info.Formula = "A^-1 B A^-1 without a small-sample factor"
 		if info.Type == CovRobust {
 			info.Type = CovRobustHC0
+		}
+	}
+	for a := 0; a < P; a++ {
+		for b := 0; b < P; b++ {
+			info.Trace += Ainv[a*P+b] * B[b*P+a]
 		}
 	}
 	V := sandwichProduct(Ainv, B, P)
