@@ -35,7 +35,12 @@ func queueRun(p *plan.Plan, bin, tmp string, n int, ref map[string][]byte) (samp
 	url := srv.ClientURL()
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Minute)
 	defer cancel()
-	c, err := queue.Connect(ctx, url, "ordplan bench")
+	secret := []byte("ordplan bench: a throwaway shared secret")
+	secretFile := filepath.Join(dir, "queue.key")
+	if err := os.WriteFile(secretFile, secret, 0o600); err != nil {
+		return sample{}, err
+	}
+	c, err := queue.Connect(ctx, queue.Config{URL: url, Name: "ordplan bench", Secret: secret})
 	if err != nil {
 		return sample{}, err
 	}
@@ -46,6 +51,7 @@ func queueRun(p *plan.Plan, bin, tmp string, n int, ref map[string][]byte) (samp
 		cmd := exec.Command(bin, "worker", "--queue", url, "--jobs", "1", "--name", fmt.Sprintf("w%d", i+1),
 			"--cache", filepath.Join(dir, fmt.Sprintf("cache%d", i+1)))
 		cmd.Stderr = logs
+		cmd.Env = append(os.Environ(), queue.EnvSecretFile+"="+secretFile)
 		if err := cmd.Start(); err != nil {
 			return sample{}, err
 		}

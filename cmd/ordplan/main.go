@@ -28,8 +28,8 @@ const (
 const usage = `ordplan: analysis plans for ordered outcomes
 
 usage:
-  ordplan run PLAN.yaml [--out DIR] [--previous DIR] [--workers N] [--queue nats://HOST:PORT] [--allow-unregistered-changes]
-  ordplan worker --queue nats://HOST:PORT [--cache DIR] [--jobs N]
+  ordplan run PLAN.yaml [--out DIR] [--previous DIR] [--workers N] [--queue nats://HOST:PORT --queue-secret-file FILE] [--allow-unregistered-changes]
+  ordplan worker --queue nats://HOST:PORT --queue-secret-file FILE [--cache DIR] [--jobs N]
   ordplan check PLAN.yaml [--no-data] [--allow-unregistered-changes]
   ordplan init PLAN.yaml [--data FILE | --header "a,b,c"] [--outcome COLUMN]
   ordplan freeze PLAN.yaml [--registration ID] [--replace]
@@ -43,7 +43,14 @@ func main() {
 	os.Exit(run(os.Args[1:], os.Stdout, os.Stderr))
 }
 
-func run(args []string, stdout, stderr io.Writer) int {
+func run(args []string, stdout, stderr io.Writer) (code int) {
+	// No panic trace reaches the user, and exit code 2 keeps its meaning.
+	defer func() {
+		if p := recover(); p != nil {
+			fmt.Fprintf(stderr, "ordplan: internal error: %v (please report it with the command line that caused it)\n", p)
+			code = exitFail
+		}
+	}()
 	if len(args) == 0 {
 		fmt.Fprint(stderr, usage)
 		return exitUsage
@@ -127,7 +134,8 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		baseline    = fs.String("baseline", "", "also show an adjacent nonparallel logit as baseline-category logits against this category")
 		level       = fs.Float64("level", 0.95, "confidence level of the intervals")
 		asJSON      = fs.Bool("json", false, "print one JSON object instead of the table")
-		queueURL    = fs.String("queue", "", "with --partitions: the NATS JetStream server whose workers hold the partitions")
+		qf          = addQueueFlags(fs, "with --partitions: the NATS JetStream server whose workers hold the partitions", true)
+		queueURL    = qf.url
 		partitions  = fs.String("partitions", "", "fit one model over these CSV files (same columns) through --queue workers, for data too large for one machine")
 	)
 	if stop, code := parseFlags(fs, args); stop {
@@ -174,7 +182,7 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		s.Groups = []runner.Group{{Predictors: s.Predictors}}
 	}
 	if *partitions != "" || *queueURL != "" {
-		return fitPartitioned(s, *queueURL, runner.SplitList(*partitions), *asJSON, *level, stdout, stderr)
+		return fitPartitioned(s, qf, runner.SplitList(*partitions), *asJSON, *level, stdout, stderr)
 	}
 	res, ds, err := runner.FitOne(s)
 	if err != nil {

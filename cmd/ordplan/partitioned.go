@@ -19,7 +19,8 @@ import (
 
 // fitPartitioned fits one model over partition files through queue
 // workers: each Newton evaluation is summed over the partitions.
-func fitPartitioned(s runner.SingleFit, url string, parts []string, asJSON bool, level float64, stdout, stderr io.Writer) int {
+func fitPartitioned(s runner.SingleFit, qf *queueFlags, parts []string, asJSON bool, level float64, stdout, stderr io.Writer) int {
+	url := *qf.url
 	switch {
 	case url == "":
 		return fail(stderr, errors.New("--partitions needs --queue nats://HOST:PORT"))
@@ -35,6 +36,10 @@ func fitPartitioned(s runner.SingleFit, url string, parts []string, asJSON bool,
 	if err != nil {
 		return fail(stderr, err)
 	}
+	cfg, err := qf.config("ordplan fit")
+	if err != nil {
+		return usageOrFail("fit", err, stderr)
+	}
 	dopt := data.Options{Outcome: s.Outcome, Levels: s.Levels, Predictors: s.Predictors, Weights: s.Weights, Offset: s.Offset, Refuse: s.Refuse}
 	whole, refs, read, err := queue.PartitionFiles(parts, dopt)
 	if err != nil {
@@ -42,11 +47,12 @@ func fitPartitioned(s runner.SingleFit, url string, parts []string, asJSON bool,
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
-	c, err := queue.Connect(ctx, url, "ordplan fit")
+	c, err := queue.Connect(ctx, cfg)
 	if err != nil {
 		return fail(stderr, err)
 	}
 	defer c.Close()
+	c.JobDeadline = *qf.deadline
 	res, err := queue.FitPartitioned(ctx, c, refs, whole, m, queue.PartitionOptions{Data: dopt})
 	if err != nil {
 		return fail(stderr, err)

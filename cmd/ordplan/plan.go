@@ -9,6 +9,7 @@ import (
 	"ordplan/plan"
 	"ordplan/render"
 	"ordplan/runner"
+	"ordplan/runner/queue"
 )
 
 func cmdCheck(args []string, stdout, stderr io.Writer) int {
@@ -79,7 +80,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	previous := fs.String("previous", "", "output directory of an earlier run: say what changed in the decisions")
 	workers := fs.Int("workers", 0, "fits run at once (default: all cores); results do not depend on it")
 	quiet := fs.Bool("quiet", false, "no progress lines")
-	queueURL := fs.String("queue", "", "run the fits on ordplan worker processes through the JetStream server at this NATS URL")
+	qf := addQueueFlags(fs, "run the fits on ordplan worker processes through the JetStream server at this NATS URL", true)
 	allow := fs.Bool("allow-unregistered-changes", false, "run although the plan departs from its frozen form without a stated reason (the report says so in its first lines)")
 	// Accept the plan before or after the options.
 	var planPath string
@@ -94,6 +95,14 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	} else if fs.NArg() > 0 || planPath == "" {
 		fmt.Fprintln(stderr, "usage: ordplan run PLAN.yaml [--out DIR] [--previous DIR] [--workers N] [--queue nats://HOST:PORT]")
 		return exitUsage
+	}
+	var qcfg *queue.Config
+	if *qf.url != "" {
+		cfg, err := qf.config("ordplan run " + planPath)
+		if err != nil {
+			return usageOrFail("run", err, stderr)
+		}
+		qcfg = &cfg
 	}
 	p, err := plan.Load(planPath)
 	if err != nil {
@@ -117,7 +126,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	if !*quiet {
 		queueLog = stderr
 	}
-	res, err := runPlan(p, opt, *queueURL, queueLog)
+	res, err := runPlan(p, opt, qcfg, *qf.deadline, queueLog)
 	if err != nil {
 		return fail(stderr, err)
 	}

@@ -15,7 +15,7 @@ import (
 	"ordplan/runner/queue"
 )
 
-const workerUsage = "usage: ordplan worker --queue nats://HOST:PORT [--cache DIR] [--jobs N] [--ack-wait 30s] [--name NAME] [--quiet]"
+const workerUsage = "usage: ordplan worker --queue nats://HOST:PORT --queue-secret-file FILE [--queue-ca FILE] [--queue-cert FILE --queue-key FILE] [--queue-creds FILE | --queue-nkey FILE] [--cache DIR] [--jobs N] [--ack-wait 30s] [--name NAME] [--quiet]"
 
 // cmdWorker pulls fits from the queue until interrupted.
 func cmdWorker(args []string, stdout, stderr io.Writer) int {
@@ -26,12 +26,17 @@ func cmdWorker(args []string, stdout, stderr io.Writer) int {
 // computing it (the tests kill a worker while it holds one).
 func runWorker(args []string, stdout, stderr io.Writer, hold time.Duration) int {
 	fs := newFlags("worker", stderr)
-	url := fs.String("queue", "", "NATS URL of a JetStream server, e.g. nats://127.0.0.1:4222 (required)")
+	qf := addQueueFlags(fs, "NATS URL of a JetStream server, e.g. nats://127.0.0.1:4222 or tls://HOST:4222 (required)", false)
+	url := qf.url
 	cache := fs.String("cache", "", "folder for data files fetched by hash (default: the user cache folder, ordplan/data)")
 	jobs := fs.Int("jobs", runtime.GOMAXPROCS(0), "jobs computed at once")
 	ackWait := fs.Duration("ack-wait", queue.DefaultAckWait, "a job not acknowledged for this long goes to another worker")
 	name := fs.String("name", "", "name in replies and logs (default: host-pid)")
 	quiet := fs.Bool("quiet", false, "no line per job")
+	maxStarts := fs.Int("max-starts", queue.DefaultLimits.Starts, "refuse jobs asking for more random starts")
+	maxIter := fs.Int("max-iterations", queue.DefaultLimits.Iterations, "refuse jobs asking for more Newton iterations")
+	maxPred := fs.Int("max-predictors", queue.DefaultLimits.Predictors, "refuse jobs with more predictors")
+	maxData := fs.Int64("max-data-mb", queue.DefaultLimits.DataBytes>>20, "refuse jobs whose data file is larger (MB)")
 	if stop, code := parseFlags(fs, args); stop {
 		return code
 	}
@@ -51,6 +56,10 @@ func runWorker(args []string, stdout, stderr io.Writer, hold time.Duration) int 
 		fmt.Fprintf(stderr, "ordplan worker: --ack-wait must be at least 100ms, not %s\n", *ackWait)
 		return exitUsage
 	}
+	if *maxStarts < 1 || *maxIter < 1 || *maxPred < 1 || *maxData < 1 {
+		fmt.Fprintln(stderr, "ordplan worker: --max-starts, --max-iterations, --max-predictors and --max-data-mb must be at least 1")
+		return exitUsage
+	}
 	if *cache == "" {
 		dir, err := queue.DefaultCacheDir()
 		if err != nil {
@@ -62,14 +71,19 @@ func runWorker(args []string, stdout, stderr io.Writer, hold time.Duration) int 
 		host, _ := os.Hostname()
 		*name = fmt.Sprintf("%s-%d", host, os.Getpid())
 	}
+	cfg, err := qf.config("ordplan worker " + *name)
+	if err != nil {
+		return usageOrFail("worker", err, stderr)
+	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
-	c, err := queue.Connect(ctx, *url, "ordplan worker "+*name)
+	c, err := queue.Connect(ctx, cfg)
 	if err != nil {
 		return fail(stderr, err)
 	}
 	defer c.Close()
-	w := &queue.Worker{Client: c, Name: *name, CacheDir: *cache, Jobs: *jobs, AckWait: *ackWait, Delay: hold}
+	w := &queue.Worker{Client: c, Name: *name, CacheDir: *cache, Jobs: *jobs, AckWait: *ackWait, Delay: hold,
+		Limits: queue.Limits{Starts: *maxStarts, Iterations: *maxIter, Predictors: *maxPred, DataBytes: *maxData << 20}}
 	if !*quiet {
 		w.Log = stderr
 	}
@@ -81,17 +95,18 @@ func runWorker(args []string, stdout, stderr io.Writer, hold time.Duration) int 
 
 // runPlan runs the plan here, or, with a queue URL, sends its fits to the
 // workers of that queue; the results are the same.
-func runPlan(p *plan.Plan, opt runner.Options, queueURL string, log io.Writer) (*runner.Result, error) {
-	if queueURL == "" {
+func runPlan(p *plan.Plan, opt runner.Options, cfg *queue.Config, deadline time.Duration, log io.Writer) (*runner.Result, error) {
+	if cfg == nil {
 		return runner.Run(p, opt)
 	}
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
-	c, err := queue.Connect(ctx, queueURL, "ordplan run "+p.Path)
+	c, err := queue.Connect(ctx, *cfg)
 	if err != nil {
 		return nil, err
 	}
 	defer c.Close()
+	c.JobDeadline = deadline
 	co := queue.NewCoordinator(ctx, c, p.Hash, log)
 	if _, err := co.AddData(p.Data.Path); err != nil {
 		return nil, fmt.Errorf("%s: data.file: %v", p.Path, err)

@@ -6,16 +6,19 @@ import (
 	"fmt"
 	"strconv"
 	"strings"
+	"time"
 
 	"github.com/nats-io/nats.go/jetstream"
 )
 
 // BatchStats says where a batch's replies came from.
 type BatchStats struct {
-	Jobs      int // tasks in the batch
-	Present   int // replies already stored when the batch started (a resumed run)
-	Queued    int // tasks already waiting in the jobs stream, not published again
-	Published int // tasks published
+	Jobs        int // tasks in the batch
+	Present     int // replies already stored when the batch started (a resumed run)
+	Queued      int // tasks already waiting in the jobs stream, not published again
+	Published   int // tasks published
+	Discarded   int // replies discarded as unauthenticated or malformed
+	Republished int // tasks published again (after a discarded reply or a deadline)
 }
 
 // batchHooks report a batch's progress.
@@ -24,103 +27,218 @@ type batchHooks struct {
 	progress func(done int)   // after each entry while waiting
 }
 
-// runBatch makes sure every task of the batch has a reply and returns the
-// replies in task order. It watches the batch's keys first, takes the
-// replies already stored, publishes the tasks that have neither a reply nor
-// a message in the jobs stream, and waits for the rest. The first valid
-// reply of each task wins; later ones, and entries that belong to another
-// batch or name another task, are ignored. The hooks, when not nil, hear
-// of the publication and of each new reply.
-func (c *Client) runBatch(ctx context.Context, batch string, tasks []*Task, h batchHooks) ([]*Reply, BatchStats, error) {
-	st := BatchStats{Jobs: len(tasks)}
-	replies := make([]*Reply, len(tasks))
+// batch is the state of one runBatch.
+type batch struct {
+	c       *Client
+	ctx     context.Context
+	id      string
+	tasks   []*Task
+	replies []*Reply
+	bad     []int // discarded replies per task
+	done    int
+	st      BatchStats
+}
+
+// runBatch makes sure every task of the batch has a valid reply and
+// returns the replies in task order. It watches the batch's keys first,
+// takes the replies already stored, publishes the tasks that have neither
+// a reply nor a message in the jobs stream, and waits for the rest.
+//
+// Every entry is opened with the shared secret and checked for shape
+// against its task: an entry that fails is logged, deleted and its task
+// published again; after MaxBadReplies such entries for one task the batch
+// fails. The first valid reply of each task wins; later ones, and keys
+// that name no task, are ignored. When no reply arrives for JobDeadline
+// the missing tasks are published again; when none arrives for another
+// JobDeadline the batch fails.
+func (c *Client) runBatch(ctx context.Context, id string, tasks []*Task, h batchHooks) ([]*Reply, BatchStats, error) {
+	b := &batch{c: c, ctx: ctx, id: id, tasks: tasks, replies: make([]*Reply, len(tasks)), bad: make([]int, len(tasks))}
+	b.st.Jobs = len(tasks)
 	if len(tasks) == 0 {
-		return replies, st, nil
+		return b.replies, b.st, nil
 	}
 	for i, t := range tasks {
-		if t.Batch != batch || t.Index != i {
-			return nil, st, fmt.Errorf("task %d of batch %s is labelled %s/%d", i, batch, t.Batch, t.Index)
+		if t.Batch != id || t.Index != i {
+			return nil, b.st, fmt.Errorf("task %d of batch %s is labelled %s/%d", i, id, t.Batch, t.Index)
 		}
 	}
-	w, err := c.results.Watch(ctx, batch+".*", jetstream.IgnoreDeletes())
+	w, err := c.results.Watch(ctx, id+".*", jetstream.IgnoreDeletes())
 	if err != nil {
-		return nil, st, fmt.Errorf("results bucket: %v", err)
+		return nil, b.st, fmt.Errorf("results bucket: %v", err)
 	}
 	defer w.Stop()
-	done := 0
-	take := func(e jetstream.KeyValueEntry) {
-		i, ok := replyIndex(e.Key(), batch, len(tasks))
-		if !ok || replies[i] != nil {
-			return
-		}
-		var r Reply
-		if decode(e.Value(), &r) != nil || r.Batch != batch || r.Index != i || r.ID != tasks[i].ID {
-			return
-		}
-		replies[i] = &r
-		done++
-	}
 	// Replies stored before this call: a restarted coordinator reuses them.
 	for {
-		e, err := next(ctx, w)
+		e, err := next(ctx, w.Updates(), nil)
 		if err != nil {
-			return nil, st, err
+			return nil, b.st, err
 		}
 		if e == nil {
 			break
 		}
-		take(e)
-	}
-	st.Present = done
-	if done < len(tasks) {
-		queued, err := c.queuedSubjects(ctx, batch)
-		if err != nil {
-			return nil, st, err
+		if _, err := b.take(e, false); err != nil {
+			return nil, b.st, err
 		}
-		for i, t := range tasks {
-			if replies[i] != nil {
+	}
+	b.st.Present = b.done
+	if b.done < len(tasks) {
+		queued, err := c.queuedSubjects(ctx, id)
+		if err != nil {
+			return nil, b.st, err
+		}
+		for i := range tasks {
+			if b.replies[i] != nil {
 				continue
 			}
-			subj := jobSubject(batch, i)
-			if queued[subj] {
-				st.Queued++
+			if queued[jobSubject(id, i)] {
+				b.st.Queued++
 				continue
 			}
-			b, err := encode(t)
-			if err != nil {
-				return nil, st, fmt.Errorf("encoding task %s: %v", t.ID, err)
+			if err := b.publish(i); err != nil {
+				return nil, b.st, err
 			}
-			if _, err := c.js.Publish(ctx, subj, b); err != nil {
-				return nil, st, fmt.Errorf("publishing job %s: %v", t.ID, err)
-			}
-			st.Published++
+			b.st.Published++
 		}
 	}
 	if h.started != nil {
-		h.started(st)
+		h.started(b.st)
 	}
-	for done < len(tasks) {
-		e, err := next(ctx, w)
-		if err != nil {
-			return nil, st, err
+	deadline := c.JobDeadline
+	if deadline <= 0 {
+		deadline = DefaultJobDeadline
+	}
+	timer := time.NewTimer(deadline)
+	defer timer.Stop()
+	silent := 0 // deadlines passed without a reply
+	for b.done < len(tasks) {
+		e, err := next(ctx, w.Updates(), timer.C)
+		switch {
+		case errors.Is(err, errDeadline):
+			silent++
+			missing := b.missing()
+			if silent >= 2 {
+				return nil, b.st, fmt.Errorf("no reply to %d of %d jobs (the first: %s) within %s, nor within %s after they were published again: "+
+					"are workers running (ordplan worker) on this server with the same secret? (--job-deadline sets the wait)",
+					len(missing), len(tasks), tasks[missing[0]].ID, deadline, deadline)
+			}
+			c.logf("queue: no reply to %d of %d jobs (the first: %s) within %s: published again", len(missing), len(tasks), tasks[missing[0]].ID, deadline)
+			for _, i := range missing {
+				if err := b.publish(i); err != nil {
+					return nil, b.st, err
+				}
+				b.st.Republished++
+			}
+			timer.Reset(deadline)
+			continue
+		case err != nil:
+			return nil, b.st, err
 		}
-		if e != nil {
-			take(e)
+		if e == nil {
+			continue
+		}
+		took, err := b.take(e, true)
+		if err != nil {
+			return nil, b.st, err
+		}
+		if took {
+			silent = 0
+			if !timer.Stop() {
+				select {
+				case <-timer.C:
+				default:
+				}
+			}
+			timer.Reset(deadline)
 			if h.progress != nil {
-				h.progress(done)
+				h.progress(b.done)
 			}
 		}
 	}
-	return replies, st, nil
+	return b.replies, b.st, nil
 }
 
+// take opens and checks one entry. A valid reply to a task still waiting
+// is kept (it returns true); an invalid one is deleted and, when
+// republish is set, its task published again.
+func (b *batch) take(e jetstream.KeyValueEntry, republish bool) (bool, error) {
+	if e.Operation() != jetstream.KeyValuePut {
+		return false, nil
+	}
+	i, ok := replyIndex(e.Key(), b.id, len(b.tasks))
+	if !ok || b.replies[i] != nil {
+		return false, nil
+	}
+	r, err := b.c.openReply(b.ctx, e.Key(), e.Value())
+	if err == nil {
+		err = checkReply(b.tasks[i], r)
+	}
+	if err == nil {
+		b.replies[i] = r
+		b.done++
+		return true, nil
+	}
+	b.bad[i]++
+	b.st.Discarded++
+	b.c.logf("queue: job %s: discarded the reply stored under %s (revision %d): %v", b.tasks[i].ID, shortKey(e.Key()), e.Revision(), err)
+	if derr := b.c.results.Delete(b.ctx, e.Key(), jetstream.LastRevision(e.Revision())); derr != nil && !errors.Is(derr, jetstream.ErrKeyExists) {
+		b.c.logf("queue: deleting the discarded reply %s: %v", shortKey(e.Key()), derr)
+	}
+	if b.bad[i] >= MaxBadReplies {
+		return false, fmt.Errorf("job %s: %d replies discarded as unauthenticated or malformed (the last: %v); "+
+			"another process that can write to the server may be rewriting results, or a worker uses another secret",
+			b.tasks[i].ID, b.bad[i], err)
+	}
+	if republish {
+		if err := b.publish(i); err != nil {
+			return false, err
+		}
+		b.st.Republished++
+	}
+	return false, nil
+}
+
+// publish seals task i and publishes it on its subject.
+func (b *batch) publish(i int) error {
+	t := b.tasks[i]
+	msg, err := b.c.sealTask(t)
+	if err != nil {
+		return fmt.Errorf("encoding job %s: %v", t.ID, err)
+	}
+	if _, err := b.c.js.Publish(b.ctx, jobSubject(b.id, i), msg); err != nil {
+		return fmt.Errorf("publishing job %s: %v", t.ID, err)
+	}
+	return nil
+}
+
+// missing lists the tasks without a reply.
+func (b *batch) missing() []int {
+	var out []int
+	for i, r := range b.replies {
+		if r == nil {
+			out = append(out, i)
+		}
+	}
+	return out
+}
+
+func shortKey(key string) string {
+	if len(key) > 20 {
+		return key[:12] + "..." + key[strings.LastIndexByte(key, '.'):]
+	}
+	return key
+}
+
+var errDeadline = errors.New("deadline")
+
 // next returns the watcher's next entry (nil marks the end of the stored
-// ones).
-func next(ctx context.Context, w jetstream.KeyWatcher) (jetstream.KeyValueEntry, error) {
+// ones), or errDeadline when the timer fires first.
+func next(ctx context.Context, updates <-chan jetstream.KeyValueEntry, timer <-chan time.Time) (jetstream.KeyValueEntry, error) {
 	select {
 	case <-ctx.Done():
 		return nil, fmt.Errorf("waiting for workers: %w", context.Cause(ctx))
-	case e, ok := <-w.Updates():
+	case <-timer:
+		return nil, errDeadline
+	case e, ok := <-updates:
 		if !ok {
 			return nil, errors.New("the results watch was closed (connection lost?)")
 		}

@@ -3,6 +3,7 @@ package queue
 import (
 	"context"
 	"fmt"
+	"io"
 	"time"
 
 	"github.com/nats-io/nats.go"
@@ -10,47 +11,83 @@ import (
 )
 
 // Client is a connection to a JetStream server with the jobs stream, the
-// results bucket and the data store opened (and created when missing).
+// results bucket and the data and replies stores opened (and created when
+// missing).
 type Client struct {
 	nc      *nats.Conn
 	ownConn bool
+	secret  []byte
 	js      jetstream.JetStream
 	jobs    jetstream.Stream
 	results jetstream.KeyValue
 	data    jetstream.ObjectStore
+	replies jetstream.ObjectStore
+
+	// JobDeadline is how long the coordinator waits for the next reply of
+	// a batch before it publishes the missing jobs again; after a second
+	// such wait without any reply it fails (default DefaultJobDeadline).
+	JobDeadline time.Duration
+	// Log, when set, hears of discarded replies and republished jobs.
+	Log io.Writer
 }
 
-// Connect dials the server at url (for example nats://127.0.0.1:4222) and
-// opens the shared resources. name identifies the client to the server.
-func Connect(ctx context.Context, url, name string) (*Client, error) {
-	nc, err := nats.Connect(url, nats.Name(name), nats.Timeout(5*time.Second),
-		nats.MaxReconnects(-1), nats.ReconnectWait(500*time.Millisecond))
-	if err != nil {
-		return nil, fmt.Errorf("queue %s: %v", url, err)
+// Connect dials the server cfg names, with its TLS settings and
+// credentials, and opens the shared resources. No message it returns
+// shows a password of the URL.
+func Connect(ctx context.Context, cfg Config) (*Client, error) {
+	shown := Redact(cfg.URL)
+	if err := cfg.check(); err != nil {
+		return nil, fmt.Errorf("queue %s: %v", shown, err)
 	}
-	c, err := NewClient(ctx, nc)
+	opts := []nats.Option{nats.Name(cfg.Name), nats.Timeout(5 * time.Second),
+		nats.MaxReconnects(-1), nats.ReconnectWait(500 * time.Millisecond)}
+	if cfg.CAFile != "" {
+		opts = append(opts, nats.RootCAs(cfg.CAFile))
+	}
+	if cfg.CertFile != "" {
+		opts = append(opts, nats.ClientCert(cfg.CertFile, cfg.KeyFile))
+	}
+	if cfg.CredsFile != "" {
+		opts = append(opts, nats.UserCredentials(cfg.CredsFile))
+	}
+	if cfg.NkeyFile != "" {
+		o, err := nats.NkeyOptionFromSeed(cfg.NkeyFile)
+		if err != nil {
+			return nil, fmt.Errorf("queue %s: nkey file %s: %s", shown, cfg.NkeyFile, scrub(err.Error(), cfg.URL))
+		}
+		opts = append(opts, o)
+	}
+	nc, err := nats.Connect(cfg.URL, opts...)
+	if err != nil {
+		return nil, fmt.Errorf("queue %s: %s", shown, scrub(err.Error(), cfg.URL))
+	}
+	c, err := NewClient(ctx, nc, cfg.Secret)
 	if err != nil {
 		nc.Close()
-		return nil, fmt.Errorf("queue %s: %v", url, err)
+		return nil, fmt.Errorf("queue %s: %s", shown, scrub(err.Error(), cfg.URL))
 	}
 	c.ownConn = true
 	return c, nil
 }
 
 // NewClient opens the shared resources over an existing connection, which
-// Close then leaves open.
-func NewClient(ctx context.Context, nc *nats.Conn) (*Client, error) {
+// Close then leaves open. secret is the shared secret (see Config).
+func NewClient(ctx context.Context, nc *nats.Conn, secret []byte) (*Client, error) {
+	if len(secret) < MinSecretBytes {
+		return nil, fmt.Errorf("the shared secret has %d bytes; at least %d are needed", len(secret), MinSecretBytes)
+	}
 	js, err := jetstream.New(nc)
 	if err != nil {
 		return nil, err
 	}
-	c := &Client{nc: nc, js: js}
+	c := &Client{nc: nc, js: js, secret: append([]byte(nil), secret...)}
 	c.jobs, err = js.CreateOrUpdateStream(ctx, jetstream.StreamConfig{
 		Name:        JobStream,
 		Description: "ordplan jobs: one message per fit or partition evaluation",
 		Subjects:    []string{JobSubject + ".>"},
 		Retention:   jetstream.WorkQueuePolicy,
 		Storage:     jetstream.FileStorage,
+		MaxAge:      ResultTTL,
 	})
 	if err != nil {
 		return nil, fmt.Errorf("jobs stream %s: %w (is JetStream enabled on the server?)", JobStream, err)
@@ -69,9 +106,19 @@ func NewClient(ctx context.Context, nc *nats.Conn) (*Client, error) {
 		Bucket:      DataBucket,
 		Description: "ordplan data files by SHA-256",
 		Storage:     jetstream.FileStorage,
+		TTL:         DataTTL,
 	})
 	if err != nil {
 		return nil, fmt.Errorf("data store %s: %w", DataBucket, err)
+	}
+	c.replies, err = js.CreateOrUpdateObjectStore(ctx, jetstream.ObjectStoreConfig{
+		Bucket:      ReplyBucket,
+		Description: "ordplan replies too large for one message",
+		Storage:     jetstream.FileStorage,
+		TTL:         ResultTTL,
+	})
+	if err != nil {
+		return nil, fmt.Errorf("replies store %s: %w", ReplyBucket, err)
 	}
 	return c, nil
 }
@@ -83,4 +130,38 @@ func (c *Client) Close() {
 		c.nc.FlushTimeout(2 * time.Second)
 		c.nc.Close()
 	}
+}
+
+func (c *Client) logf(format string, a ...any) {
+	if c.Log != nil {
+		fmt.Fprintf(c.Log, format+"\n", a...)
+	}
+}
+
+// sealTask encodes and seals a task for its subject.
+func (c *Client) sealTask(t *Task) ([]byte, error) {
+	b, err := encode(t)
+	if err != nil {
+		return nil, err
+	}
+	return seal(c.secret, sealTask, jobSubject(t.Batch, t.Index), b), nil
+}
+
+// openTask checks and decodes a job message.
+func (c *Client) openTask(subject string, b []byte) (*Task, error) {
+	kind, payload, err := open(c.secret, subject, b)
+	if err != nil {
+		return nil, err
+	}
+	if kind != sealTask {
+		return nil, fmt.Errorf("a message of kind %q where a job belongs", kind)
+	}
+	var t Task
+	if err := decode(payload, &t); err != nil {
+		return nil, fmt.Errorf("undecodable job: %v", err)
+	}
+	if jobSubject(t.Batch, t.Index) != subject {
+		return nil, fmt.Errorf("the job names %s, not its subject", jobSubject(t.Batch, t.Index))
+	}
+	return &t, nil
 }

@@ -23,7 +23,11 @@ func (w *Worker) compute(ctx context.Context, t *Task) (r *Reply) {
 			r = &Reply{Batch: t.Batch, Index: t.Index, ID: t.ID, Err: fmt.Sprintf("%s: internal error on worker %s: %v", t.ID, w.Name, p)}
 		}
 	}()
-	var err error
+	err := w.Limits.check(t)
+	if err != nil {
+		r.Err = err.Error()
+		return r
+	}
 	switch t.Kind {
 	case KindFit:
 		if t.Fit == nil {
@@ -31,7 +35,7 @@ func (w *Worker) compute(ctx context.Context, t *Task) (r *Reply) {
 			break
 		}
 		var path string
-		if path, err = w.cache.path(ctx, w.Client.data, t.Fit.DataHash, t.Fit.DataFile); err == nil {
+		if path, err = w.cache.path(ctx, w.Client.data, t.Fit.DataHash, t.Fit.DataFile, w.Limits.DataBytes); err == nil {
 			r.Result, err = runner.ExecuteJob(path, *t.Fit)
 		}
 	case KindSums, KindDiag:
@@ -63,7 +67,7 @@ func (w *Worker) compute(ctx context.Context, t *Task) (r *Reply) {
 
 // partition returns the fit data of a partition, loaded once per worker.
 func (w *Worker) partition(ctx context.Context, p *PartitionTask) (*fit.Data, error) {
-	path, err := w.cache.path(ctx, w.Client.data, p.DataHash, p.Name)
+	path, err := w.cache.path(ctx, w.Client.data, p.DataHash, p.Name, w.Limits.DataBytes)
 	if err != nil {
 		return nil, err
 	}

@@ -32,6 +32,9 @@ type Coordinator struct {
 // hash. ctx bounds every wait for workers; log (may be nil) gets one line
 // per batch.
 func NewCoordinator(ctx context.Context, c *Client, planHash string, log io.Writer) *Coordinator {
+	if c.Log == nil {
+		c.Log = log
+	}
 	return &Coordinator{ctx: ctx, c: c, planHash: planHash, log: log, files: map[string]string{}}
 }
 

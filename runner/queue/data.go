@@ -10,6 +10,7 @@ import (
 	"os"
 	"path/filepath"
 	"sync"
+	"time"
 
 	"github.com/nats-io/nats.go/jetstream"
 )
@@ -41,8 +42,8 @@ func (c *Client) PutData(ctx context.Context, path, hash string) error {
 	}
 	want := sha256.Sum256(b)
 	info, err := c.data.GetInfo(ctx, hash)
-	if err == nil && info.Digest == "SHA-256="+base64.URLEncoding.EncodeToString(want[:]) {
-		return nil
+	if err == nil && info.Digest == "SHA-256="+base64.URLEncoding.EncodeToString(want[:]) && time.Since(info.ModTime) < DataTTL/2 {
+		return nil // present, and far from expiring
 	}
 	if err != nil && !errors.Is(err, jetstream.ErrObjectNotFound) {
 		return fmt.Errorf("data store: %v", err)
@@ -91,7 +92,7 @@ func DefaultCacheDir() (string, error) {
 // path returns the local path of the data file with the given hash,
 // fetching it when it is absent or its bytes do not hash to hash. A file
 // whose fetched bytes do not match is refused.
-func (dc *dataCache) path(ctx context.Context, store jetstream.ObjectStore, hash, name string) (string, error) {
+func (dc *dataCache) path(ctx context.Context, store jetstream.ObjectStore, hash, name string, limit int64) (string, error) {
 	if len(hash) != 64 {
 		return "", fmt.Errorf("data %s: %q is not a SHA-256 hash", name, hash)
 	}
@@ -107,6 +108,13 @@ func (dc *dataCache) path(ctx context.Context, store jetstream.ObjectStore, hash
 	if b, err := os.ReadFile(p); err == nil && hashBytes(b) == hash {
 		dc.remember(hash, p)
 		return p, nil
+	}
+	info, err := store.GetInfo(ctx, hash)
+	if err != nil {
+		return "", fmt.Errorf("data %s (sha256 %s): fetching it from the data store: %v", name, hash, err)
+	}
+	if info.Size > uint64(limit) {
+		return "", fmt.Errorf("data %s has %d bytes; this worker takes at most %d (ordplan worker --max-data-mb)", name, info.Size, limit)
 	}
 	b, err := store.GetBytes(ctx, hash)
 	if err != nil {

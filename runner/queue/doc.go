@@ -4,6 +4,7 @@
 // With a JetStream server reachable by every machine (for example
 // `nats-server -js`):
 //
+//	export ORDPLAN_QUEUE_SECRET_FILE=queue.key          # the same secret everywhere
 //	ordplan worker --queue nats://HOST:4222             # on each worker machine
 //	ordplan run plan.yaml --queue nats://HOST:4222      # writes the same report as a local run
 //
@@ -14,7 +15,7 @@
 // split into partitions that only the workers read.
 //
 // The coordinator (ordplan run --queue URL) and the workers (ordplan worker
-// --queue URL) share three JetStream resources:
+// --queue URL) share four JetStream resources:
 //
 //   - the stream ORDPLAN_JOBS (work-queue retention, file storage) on the
 //     subjects ordplan.jobs.<batch>.<index>, read by the durable pull
@@ -22,14 +23,19 @@
 //     stream when a worker acknowledges it, and is delivered again when its
 //     ack deadline passes without an acknowledgement (a worker that died);
 //     workers send in-progress acknowledgements while they fit, so long
-//     healthy jobs are not delivered twice;
+//     healthy jobs are not delivered twice; a job is delivered at most
+//     MaxDeliver times, and one delivered more than PoisonAfter times is
+//     answered with an error instead of being computed again;
 //   - the key-value bucket ordplan-results, where a worker stores the reply
 //     to job <index> of batch <batch> under the key <batch>.<index> with a
 //     create-only write, so the first reply wins and a second one is
 //     dropped;
 //   - the object store ordplan-data, where data files are kept under the
 //     hex SHA-256 of their bytes; workers copy them into a local cache and
-//     check the hash before fitting.
+//     check the hash before fitting (objects expire after DataTTL);
+//   - the object store ordplan-replies, holding replies too large for one
+//     message under reply.<batch>.<index>; the bucket entry then points
+//     there.
 //
 // A batch is the set of fits of one outcome of a plan run (its id hashes the
 // program version, the plan hash and the job list, data hash included), or
@@ -40,5 +46,11 @@
 // and collects the rest.
 //
 // Messages are gob-encoded: a Task on the jobs stream and a Reply in the
-// bucket. Gob keeps NaN and infinite values, which a fit result may hold.
+// bucket, each sealed with an HMAC-SHA256 made with the secret shared by
+// the coordinator and the workers (auth.go). Workers drop jobs that do not
+// open and refuse jobs beyond their Limits; the coordinator discards, logs
+// and publishes again the job of a reply that does not open or does not
+// have the shape of an answer (validate.go), and never waits longer than
+// twice the job deadline without a reply. Connect takes TLS files and NATS
+// credentials (Config) and never shows a URL's password.
 package queue

@@ -16,10 +16,11 @@ import (
 // storeReply writes a reply as a misbehaving or late worker would.
 func storeReply(t *testing.T, ctx context.Context, c *Client, key string, r *Reply, overwrite bool) {
 	t.Helper()
-	b, err := encode(r)
+	payload, err := encode(r)
 	if err != nil {
 		t.Fatal(err)
 	}
+	b := seal(testSecret, sealReply, key, payload)
 	if overwrite {
 		_, err = c.results.Put(ctx, key, b)
 	} else {

@@ -15,6 +15,9 @@ import (
 
 var refDir = refdata.Dir()
 
+// testSecret is the shared secret of the tests' coordinators and workers.
+var testSecret = []byte("a test secret of more than sixteen bytes")
+
 var gssPredictors = []string{"yr89", "male", "white", "age", "ed", "prst"}
 
 // testContext bounds a test: every wait ends within the limit.
@@ -26,7 +29,7 @@ func testContext(t *testing.T, limit time.Duration) context.Context {
 
 func connect(t *testing.T, ctx context.Context, url string) *Client {
 	t.Helper()
-	c, err := Connect(ctx, url, "ordplan-test")
+	c, err := Connect(ctx, Config{URL: url, Name: "ordplan-test", Secret: testSecret})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -94,4 +97,8 @@ func gssJobs(t *testing.T, levels ...string) (string, []runner.Job) {
 			FitOptions:  fit.Options{Covariance: "oim", Workers: 1}})
 	}
 	return path, jobs
+}
+
+func cancelable() (context.Context, context.CancelFunc) {
+	return context.WithCancel(context.Background())
 }

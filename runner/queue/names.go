@@ -12,14 +12,34 @@ const (
 	WorkerGroup  = "ordplan-workers"
 	ResultBucket = "ordplan-results" // keys: <batch>.<index>
 	DataBucket   = "ordplan-data"    // objects: hex SHA-256 of the bytes
+	ReplyBucket  = "ordplan-replies" // objects: reply.<batch>.<index>, replies too large for a message
 	// DefaultAckWait is how long a job may go without an acknowledgement
 	// (final or in progress) before it is delivered to another worker.
 	DefaultAckWait = 30 * time.Second
-	// ResultTTL is how long replies are kept for a restarted coordinator.
+	// DefaultJobDeadline is how long a coordinator waits for the next reply
+	// of a batch before it publishes the missing jobs again (and, after a
+	// second such wait, fails).
+	DefaultJobDeadline = 30 * time.Minute
+	// ResultTTL is how long replies (and unclaimed jobs) are kept for a
+	// restarted coordinator.
 	ResultTTL = 7 * 24 * time.Hour
-	// formatVersion enters every batch id: replies written by an
-	// incompatible version are never reused.
-	formatVersion = "ordplan-queue/1"
+	// DataTTL is how long a data file stays in the data store after its
+	// upload; a coordinator uploads again a copy older than half of it.
+	DataTTL = 7 * 24 * time.Hour
+	// MaxDeliver bounds the deliveries of one job. A worker that receives
+	// a job for the PoisonAfter+1-th time does not compute it: every
+	// earlier worker stopped while holding it, and the coordinator gets an
+	// error reply instead.
+	MaxDeliver  = 5
+	PoisonAfter = 3
+	// MaxBadReplies is how many invalid or unauthenticated replies a job
+	// may receive before the run fails.
+	MaxBadReplies = 3
+	// MaxReplyBytes bounds a reply kept in the replies store.
+	MaxReplyBytes = 1 << 30
+	// formatVersion enters every batch id and every seal: replies written
+	// by an incompatible version are never reused.
+	formatVersion = "ordplan-queue/2"
 )
 
 func jobSubject(batch string, index int) string {
@@ -28,4 +48,8 @@ func jobSubject(batch string, index int) string {
 
 func resultKey(batch string, index int) string {
 	return batch + "." + strconv.Itoa(index)
+}
+
+func replyObject(key string) string {
+	return "reply." + key
 }

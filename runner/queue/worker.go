@@ -20,6 +20,7 @@ type Worker struct {
 	Jobs     int           // jobs computed at once (default 1)
 	AckWait  time.Duration // redelivery deadline of an unacknowledged job (default DefaultAckWait)
 	Log      io.Writer     // one line per job (nil: none)
+	Limits   Limits        // what a job may ask (zero fields: DefaultLimits)
 	// Delay makes the worker wait this long after taking each job, before
 	// computing it. Test-only: it lets tests kill a worker while it holds a
 	// job and check that in-progress acknowledgements keep a slow job.
@@ -41,6 +42,7 @@ func (w *Worker) Run(ctx context.Context) error {
 		w.AckWait = DefaultAckWait
 	}
 	w.interval = max(w.AckWait/3, 50*time.Millisecond)
+	w.Limits = w.Limits.withDefaults()
 	w.cache = newDataCache(w.CacheDir)
 	w.parts = newPartitionCache(4)
 	cons, err := w.Client.js.CreateOrUpdateConsumer(ctx, JobStream, jetstream.ConsumerConfig{
@@ -49,13 +51,13 @@ func (w *Worker) Run(ctx context.Context) error {
 		FilterSubject: JobSubject + ".>",
 		AckPolicy:     jetstream.AckExplicitPolicy,
 		AckWait:       w.AckWait,
-		MaxDeliver:    -1,
+		MaxDeliver:    MaxDeliver,
 		DeliverPolicy: jetstream.DeliverAllPolicy,
 	})
 	if err != nil {
 		return fmt.Errorf("worker consumer %s: %v", WorkerGroup, err)
 	}
-	w.logf("worker %s: ready (%d at once, ack wait %s)", w.Name, w.Jobs, w.AckWait)
+	w.logf("worker %s: ready (%d at once, ack wait %s; limits: %s)", w.Name, w.Jobs, w.AckWait, w.Limits)
 	var wg sync.WaitGroup
 	for range w.Jobs {
 		wg.Add(1)
@@ -92,16 +94,19 @@ func (w *Worker) loop(ctx context.Context, cons jetstream.Consumer) {
 	}
 }
 
-// handle computes one job, stores its reply and acknowledges it.
+// handle computes one job, stores its reply and acknowledges it. A job
+// without a valid seal is dropped; a job delivered more than PoisonAfter
+// times (every worker that took it stopped) is answered with an error
+// instead of being computed again.
 func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 	var delivered uint64
 	if md, err := msg.Metadata(); err == nil {
 		delivered = md.NumDelivered
 	}
-	var t Task
-	if err := decode(msg.Data(), &t); err != nil {
-		w.logf("worker %s: %s: undecodable job dropped: %v", w.Name, msg.Subject(), err)
-		msg.TermWithReason("undecodable job")
+	t, err := w.Client.openTask(msg.Subject(), msg.Data())
+	if err != nil {
+		w.logf("worker %s: %s: job refused: %v", w.Name, msg.Subject(), err)
+		msg.TermWithReason("job refused: " + err.Error())
 		return
 	}
 	w.logf("worker %s: started %s %s (delivery %d)", w.Name, msg.Subject(), t.ID, delivered)
@@ -114,19 +119,26 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 	}
 	// Computing and storing do not stop halfway on shutdown.
 	work := context.WithoutCancel(ctx)
-	r := w.compute(work, &t)
-	r.Worker, r.Delivered = w.Name, delivered
-	b, err := encode(r)
-	if limit := w.Client.nc.MaxPayload() - 1024; err == nil && int64(len(b)) > limit {
-		err = fmt.Errorf("the reply has %d bytes, more than the server's message limit allows (%d)", len(b), limit)
+	var r *Reply
+	if delivered > PoisonAfter {
+		r = &Reply{Batch: t.Batch, Index: t.Index, ID: t.ID, Err: fmt.Sprintf(
+			"%s: the job was delivered %d times and no worker finished it (each one stopped while computing it: out of memory, or killed?); it is not tried again",
+			t.ID, delivered)}
+	} else {
+		r = w.compute(work, t)
 	}
+	r.Worker, r.Delivered = w.Name, delivered
+	key := resultKey(t.Batch, t.Index)
+	b, err := w.sealReply(work, key, r)
 	if err != nil {
 		r = &Reply{Batch: t.Batch, Index: t.Index, ID: t.ID, Worker: w.Name, Delivered: delivered, Err: t.ID + ": " + err.Error()}
-		b, _ = encode(r)
+		b, err = w.sealReply(work, key, r)
 	}
 	sctx, cancel := context.WithTimeout(work, 30*time.Second)
 	defer cancel()
-	_, err = w.Client.results.Create(sctx, resultKey(t.Batch, t.Index), b)
+	if err == nil {
+		_, err = w.Client.results.Create(sctx, key, b)
+	}
 	stop()
 	switch {
 	case errors.Is(err, jetstream.ErrKeyExists):
@@ -145,6 +157,32 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 	if err := msg.DoubleAck(sctx); err != nil {
 		w.logf("worker %s: %s: acknowledging: %v", w.Name, t.ID, err)
 	}
+}
+
+// sealReply encodes and seals a reply for its key. A reply too large for
+// one message goes to the replies store, and the entry points to it.
+func (w *Worker) sealReply(ctx context.Context, key string, r *Reply) ([]byte, error) {
+	payload, err := encode(r)
+	if err != nil {
+		return nil, err
+	}
+	b := seal(w.Client.secret, sealReply, key, payload)
+	if int64(len(b)) <= w.Client.nc.MaxPayload()-1024 {
+		return b, nil
+	}
+	if len(b) > MaxReplyBytes {
+		return nil, fmt.Errorf("the reply has %d bytes, more than the %d a reply may have", len(b), MaxReplyBytes)
+	}
+	sctx, cancel := context.WithTimeout(ctx, 5*time.Minute)
+	defer cancel()
+	if _, err := w.Client.replies.PutBytes(sctx, replyObject(key), b); err != nil {
+		return nil, fmt.Errorf("storing a reply of %d bytes in the replies store: %v", len(b), err)
+	}
+	ref, err := encode(objectRef{Object: replyObject(key), Size: len(b)})
+	if err != nil {
+		return nil, err
+	}
+	return seal(w.Client.secret, sealRef, key, ref), nil
 }
 
 // keepAlive sends in-progress acknowledgements until the returned function

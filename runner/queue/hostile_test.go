@@ -1,0 +1,396 @@
+package queue
+
+// A hostile or broken client of the server (it can write to the results
+// bucket and the jobs stream, but does not hold the shared secret, or
+// holds it and sends nonsense) cannot make a run report anything but what
+// a local run reports: the coordinator discards what does not open or does
+// not have the shape of an answer, publishes the job again, and never
+// waits forever; workers refuse jobs beyond their limits.
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/nats-io/nats.go/jetstream"
+
+	"ordplan/runner"
+	"ordplan/runner/data"
+	"ordplan/runner/fit"
+	"ordplan/runner/queue/localserver"
+)
+
+// executeAsync runs a coordinator's Execute in the background.
+func executeAsync(co *Coordinator, jobs []runner.Job) <-chan []error {
+	done := make(chan []error, 1)
+	go func() {
+		res, errs := co.Execute(jobs)
+		for i := range errs {
+			if errs[i] == nil && res[i] == nil {
+				errs[i] = fmt.Errorf("no result")
+			}
+		}
+		done <- errs
+	}()
+	return done
+}
+
+func sameAsLocal(t *testing.T, path string, job runner.Job, got *fit.Result) {
+	t.Helper()
+	want, err := runner.ExecuteJob(path, job)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if math.Float64bits(got.LogLik) != math.Float64bits(want.LogLik) || len(got.Estimates) != len(want.Estimates) {
+		t.Fatalf("%s: log-likelihood %v, local %v", job.ID, got.LogLik, want.LogLik)
+	}
+	for i := range want.Estimates {
+		if math.Float64bits(got.Estimates[i]) != math.Float64bits(want.Estimates[i]) {
+			t.Fatalf("%s: %s = %v, local %v", job.ID, want.ParamNames[i], got.Estimates[i], want.Estimates[i])
+		}
+	}
+}
+
+// A rerun after a hostile client rewrote a stored result (with forged
+// estimates, without the secret) recomputes that fit: the report equals a
+// local run's.
+func TestRewrittenResultDiscarded(t *testing.T) {
+	ctx := testContext(t, 90*time.Second)
+	url := localserver.ForTest(t)
+	c := connect(t, ctx, url)
+	path, jobs := gssJobs(t, "parallel", "nonparallel")
+	startWorker(t, url, "w1", 5*time.Second, 0)
+	co := NewCoordinator(ctx, c, "plan-hash", nil)
+	if _, err := co.AddData(path); err != nil {
+		t.Fatal(err)
+	}
+	if _, errs := co.Execute(jobs); errs[0] != nil || errs[1] != nil {
+		t.Fatal(errs)
+	}
+	id, _ := RunID("plan-hash", jobs)
+	forged, _ := runner.ExecuteJob(path, jobs[0])
+	forged.Estimates[len(forged.Estimates)-1] *= 3
+	forged.LogLik /= 2
+	payload, _ := encode(&Reply{Batch: id, Index: 0, ID: jobs[0].ID, Worker: "w1", Result: forged})
+	for name, b := range map[string][]byte{
+		"plain gob":          payload,
+		"sealed, wrong key":  seal([]byte("not the secret, but long enough"), sealReply, resultKey(id, 0), payload),
+		"another key's seal": seal(testSecret, sealReply, resultKey(id, 1), payload),
+	} {
+		if _, err := c.results.Put(ctx, resultKey(id, 0), b); err != nil {
+			t.Fatal(err)
+		}
+		log := &LogBuffer{}
+		co := NewCoordinator(ctx, connect(t, ctx, url), "plan-hash", log)
+		co.AddData(path)
+		res, errs := co.Execute(jobs)
+		if errs[0] != nil || errs[1] != nil {
+			t.Fatalf("%s: %v", name, errs)
+		}
+		sameAsLocal(t, path, jobs[0], res[0])
+		if !strings.Contains(log.String(), "discarded the reply") || !strings.Contains(log.String(), "not authenticated") {
+			t.Errorf("%s: no line about the discarded reply:\n%s", name, log.String())
+		}
+	}
+}
+
+// Garbage under a result key, and an "ok" reply with no estimates (sealed:
+// a broken worker), are discarded and the job published again; the run
+// finishes with the local results. Garbage that keeps coming fails the run
+// with a message, never a hang.
+func TestGarbageAndEmptyRepliesDiscarded(t *testing.T) {
+	ctx := testContext(t, 90*time.Second)
+	url := localserver.ForTest(t)
+	c := connect(t, ctx, url)
+	path, jobs := gssJobs(t, "parallel", "nonparallel")
+	log := &LogBuffer{}
+	co := NewCoordinator(ctx, c, "plan-hash", log)
+	co.AddData(path)
+	id, _ := RunID("plan-hash", jobs)
+	done := make(chan [2]any, 1)
+	go func() {
+		res, errs := co.Execute(jobs)
+		done <- [2]any{res, errs}
+	}()
+	waitFor(t, 10*time.Second, "the jobs in the stream", func() bool {
+		info, err := c.jobs.Info(ctx)
+		return err == nil && info.State.Msgs == 2
+	})
+	if _, err := c.results.Put(ctx, resultKey(id, 0), []byte("\x00\xffgarbage")); err != nil {
+		t.Fatal(err)
+	}
+	empty, _ := encode(&Reply{Batch: id, Index: 1, ID: jobs[1].ID, Worker: "broken", Result: &fit.Result{Status: fit.StatusOK}})
+	if _, err := c.results.Put(ctx, resultKey(id, 1), seal(testSecret, sealReply, resultKey(id, 1), empty)); err != nil {
+		t.Fatal(err)
+	}
+	waitFor(t, 10*time.Second, "two discarded replies", func() bool { return log.Count("discarded the reply") == 2 })
+	startWorker(t, url, "w1", 5*time.Second, 0)
+	var out [2]any
+	select {
+	case out = <-done:
+	case <-ctx.Done():
+		t.Fatal("the coordinator did not finish")
+	}
+	res, errs := out[0].([]*fit.Result), out[1].([]error)
+	for i := range jobs {
+		if errs[i] != nil {
+			t.Fatalf("job %d: %v", i, errs[i])
+		}
+		sameAsLocal(t, path, jobs[i], res[i])
+	}
+	if !strings.Contains(log.String(), `malformed`) {
+		t.Errorf("the empty reply is not called malformed:\n%s", log.String())
+	}
+}
+
+// Garbage that keeps coming (and no worker to answer first) fails the run
+// with a message, never a hang.
+func TestPersistentGarbageFailsRun(t *testing.T) {
+	ctx := testContext(t, 60*time.Second)
+	url := localserver.ForTest(t)
+	c := connect(t, ctx, url)
+	path, jobs2 := gssJobs(t, "parallel")
+	c2 := connect(t, ctx, url)
+	co2 := NewCoordinator(ctx, c2, "plan-hash", nil)
+	co2.AddData(path)
+	id2, _ := RunID("plan-hash", jobs2)
+	errCh := executeAsync(co2, jobs2)
+	stopGarbage := make(chan struct{})
+	defer close(stopGarbage)
+	go func() {
+		for {
+			select {
+			case <-stopGarbage:
+				return
+			case <-time.After(20 * time.Millisecond):
+				c.results.Put(ctx, resultKey(id2, 0), []byte("garbage"))
+			}
+		}
+	}()
+	select {
+	case errs := <-errCh:
+		if errs[0] == nil || !strings.Contains(errs[0].Error(), "replies discarded as unauthenticated or malformed") {
+			t.Fatalf("got %v", errs[0])
+		}
+		if co2.Err() == nil {
+			t.Error("the run is not failed")
+		}
+	case <-ctx.Done():
+		t.Fatal("the coordinator waits forever under a stream of garbage")
+	}
+}
+
+// A coordinator without workers fails after twice its job deadline, having
+// published the job again once, with a message saying what to check.
+func TestJobDeadline(t *testing.T) {
+	ctx := testContext(t, 30*time.Second)
+	url := localserver.ForTest(t)
+	c := connect(t, ctx, url)
+	c.JobDeadline = 300 * time.Millisecond
+	path, jobs := gssJobs(t, "parallel")
+	co := NewCoordinator(ctx, c, "plan-hash", nil)
+	co.AddData(path)
+	start := time.Now()
+	_, errs := co.Execute(jobs)
+	if errs[0] == nil || !strings.Contains(errs[0].Error(), "no reply to 1 of 1 jobs") || !strings.Contains(errs[0].Error(), "are workers running") {
+		t.Fatalf("got %v", errs[0])
+	}
+	if took := time.Since(start); took < 600*time.Millisecond || took > 10*time.Second {
+		t.Errorf("failed after %s", took)
+	}
+	if st := co.Stats(); len(st) != 1 || st[0].Republished != 1 {
+		t.Errorf("stats %+v", st)
+	}
+}
+
+// Workers refuse jobs without the secret's seal, and answer a sealed job
+// asking for 2^30 random starts (or more iterations than allowed) with an
+// error instead of computing it.
+func TestWorkerLimitsAndUnsealedJobs(t *testing.T) {
+	ctx := testContext(t, 60*time.Second)
+	url := localserver.ForTest(t)
+	c := connect(t, ctx, url)
+	path, jobs := gssJobs(t, "parallel")
+	if err := c.PutData(ctx, path, jobs[0].DataHash); err != nil {
+		t.Fatal(err)
+	}
+	log := startWorker(t, url, "w1", 5*time.Second, 0)
+	// Unsealed: dropped by the worker, which keeps working.
+	raw, _ := encode(&Task{Batch: "unsealed", Index: 0, ID: jobs[0].ID, Kind: KindFit, Fit: &jobs[0]})
+	if _, err := c.js.Publish(ctx, jobSubject("unsealed", 0), raw); err != nil {
+		t.Fatal(err)
+	}
+	waitFor(t, 10*time.Second, "the unsealed job refused", func() bool { return strings.Contains(log.String(), "job refused: not authenticated") })
+	for _, c2 := range []struct {
+		set  func(o *fit.Options)
+		want string
+	}{
+		{func(o *fit.Options) { o.RandomStarts = 1 << 30 }, "asks for 1073741824 random starts; this worker allows at most 1000"},
+		{func(o *fit.Options) { o.MaxIter = 1 << 40 }, "iterations; this worker allows at most 10000"},
+	} {
+		j := jobs[0]
+		c2.set(&j.FitOptions)
+		batch := fmt.Sprintf("limits%d", j.FitOptions.MaxIter)
+		task := &Task{Batch: batch, Index: 0, ID: j.ID, Kind: KindFit, Fit: &j}
+		replies, _, err := c.runBatch(ctx, batch, []*Task{task}, batchHooks{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if r := replies[0]; r.Result != nil || !strings.Contains(r.Err, c2.want) {
+			t.Fatalf("reply %+v, want an error with %q", r, c2.want)
+		}
+	}
+}
+
+// A job whose earlier deliveries all ended without a reply (the workers
+// holding it died) is answered with an error at the next delivery, not
+// computed again; the server stops delivering it after MaxDeliver.
+func TestPoisonedJobReported(t *testing.T) {
+	ctx := testContext(t, 60*time.Second)
+	url := localserver.ForTest(t)
+	c := connect(t, ctx, url)
+	path, jobs := gssJobs(t, "parallel")
+	c.PutData(ctx, path, jobs[0].DataHash)
+	task := &Task{Batch: "poison", Index: 0, ID: jobs[0].ID, Kind: KindFit, Fit: &jobs[0]}
+	b, _ := c.sealTask(task)
+	if _, err := c.js.Publish(ctx, jobSubject("poison", 0), b); err != nil {
+		t.Fatal(err)
+	}
+	// Three workers take the job and die: here, deliveries left unacknowledged.
+	cons, err := c.js.CreateOrUpdateConsumer(ctx, JobStream, jetstream.ConsumerConfig{
+		Durable: WorkerGroup, FilterSubject: JobSubject + ".>", AckPolicy: jetstream.AckExplicitPolicy,
+		AckWait: 200 * time.Millisecond, MaxDeliver: MaxDeliver, DeliverPolicy: jetstream.DeliverAllPolicy})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for n := 0; n < PoisonAfter; n++ {
+		msgs, err := cons.Fetch(1, jetstream.FetchMaxWait(5*time.Second))
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := 0
+		for range msgs.Messages() {
+			got++
+		}
+		if got != 1 {
+			t.Fatalf("delivery %d: %d messages", n+1, got)
+		}
+	}
+	startWorker(t, url, "w1", 5*time.Second, 0)
+	replies, _, err := c.runBatch(ctx, "poison", []*Task{task}, batchHooks{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r := replies[0]; r.Result != nil || !strings.Contains(r.Err, "delivered 4 times and no worker finished it") {
+		t.Fatalf("reply %+v", r)
+	}
+	info, err := c.jobs.Info(ctx)
+	if err != nil || info.State.Msgs != 0 {
+		t.Errorf("the poisoned job is still in the stream: %v", err)
+	}
+}
+
+// A reply larger than one message (a model with 433 parameters: its
+// covariance alone is 1.5 MB, over the server's 1 MB limit) goes through
+// the replies store; the result equals the local fit bit for bit.
+func TestOversizedReplyThroughObjectStore(t *testing.T) {
+	if testing.Short() || raceDetector {
+		t.Skip("fits a model with 433 parameters")
+	}
+	ctx := testContext(t, 120*time.Second)
+	url := localserver.ForTest(t)
+	c := connect(t, ctx, url)
+	const K, N = 432, 1300
+	rng := rand.New(rand.NewPCG(433, 1))
+	var b strings.Builder
+	preds := make([]string, K)
+	b.WriteString("y")
+	for k := range preds {
+		preds[k] = fmt.Sprintf("x%d", k+1)
+		b.WriteString("," + preds[k])
+	}
+	b.WriteString("\n")
+	row := make([]float64, K)
+	for range N {
+		eta := 0.0
+		for k := range row {
+			row[k] = math.Round(rng.NormFloat64()*1000) / 1000
+			eta += 0.05 * row[k] * float64(k%3-1)
+		}
+		u := rng.Float64()
+		y := 1
+		if eta+math.Log(u/(1-u)) > 0 {
+			y = 2
+		}
+		fmt.Fprintf(&b, "%d", y)
+		for _, v := range row {
+			fmt.Fprintf(&b, ",%g", v)
+		}
+		b.WriteString("\n")
+	}
+	path := filepath.Join(t.TempDir(), "wide.csv")
+	if err := os.WriteFile(path, []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	h, _ := HashFile(path)
+	spec, err := runner.LevelSpec("cumulative", false, "logit", "parallel", preds, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	job := runner.Job{Outcome: "y", ID: "cumulative/parallel/logit", Spec: spec, DataFile: "wide.csv", DataHash: h,
+		DataOptions: data.Options{Outcome: "y", Predictors: preds}, FitOptions: fit.Options{Covariance: "oim", Workers: 1}}
+	startWorker(t, url, "w1", 5*time.Second, 0)
+	co := NewCoordinator(ctx, c, "wide", nil)
+	co.AddData(path)
+	res, errs := co.Execute([]runner.Job{job})
+	if errs[0] != nil {
+		t.Fatal(errs[0])
+	}
+	if res[0].NParams != 433 || !res[0].OK() {
+		t.Fatalf("%d parameters, status %s", res[0].NParams, res[0].Status)
+	}
+	sameAsLocal(t, path, job, res[0])
+	id, _ := RunID("wide", []runner.Job{job})
+	if _, err := c.replies.GetInfo(ctx, replyObject(resultKey(id, 0))); err != nil {
+		t.Errorf("the reply is not in the replies store: %v", err)
+	}
+}
+
+// Every shape check of a reply refuses what it must.
+func TestCheckReply(t *testing.T) {
+	_, jobs := gssJobs(t, "parallel")
+	path := filepath.Join(refDir, "gsswarm.csv")
+	good, err := runner.ExecuteJob(path, jobs[0])
+	if err != nil {
+		t.Fatal(err)
+	}
+	task := &Task{Batch: "b", Index: 0, ID: jobs[0].ID, Kind: KindFit, Fit: &jobs[0]}
+	ok := func() *Reply { g := *good; return &Reply{Batch: "b", Index: 0, ID: jobs[0].ID, Result: &g} }
+	if err := checkReply(task, ok()); err != nil {
+		t.Fatalf("a good reply refused: %v", err)
+	}
+	bad := map[string]func(r *Reply){
+		"no result":        func(r *Reply) { r.Result = nil },
+		"empty result":     func(r *Reply) { r.Result = &fit.Result{Status: fit.StatusOK} },
+		"short estimates":  func(r *Reply) { r.Result.Estimates = r.Result.Estimates[:2] },
+		"short covariance": func(r *Reply) { r.Result.Cov = r.Result.Cov[:3] },
+		"infinite":         func(r *Reply) { r.Result.Estimates = append([]float64{math.Inf(1)}, r.Result.Estimates[1:]...) },
+		"NaN loglik":       func(r *Reply) { r.Result.LogLik = math.NaN() },
+		"other model":      func(r *Reply) { r.Result.Model.Link = fit.Probit },
+		"other job":        func(r *Reply) { r.ID = "adjacent/parallel/logit" },
+		"error and result": func(r *Reply) { r.Err = "x" },
+		"unknown status":   func(r *Reply) { r.Result.Status = "fine" },
+	}
+	for name, f := range bad {
+		r := ok()
+		f(r)
+		if err := checkReply(task, r); err == nil {
+			t.Errorf("%s: accepted", name)
+		}
+	}
+}

@@ -1,0 +1,5 @@
+//go:build !race
+
+package queue
+
+const raceDetector = false
