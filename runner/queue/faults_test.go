@@ -38,7 +38,8 @@ func TestDuplicateAndForeignRepliesIgnored(t *testing.T) {
 	url := localserver.ForTest(t)
 	c := connect(t, ctx, url)
 	path, jobs := gssJobs(t, "parallel", "nonparallel")
-	co := NewCoordinator(ctx, c, "plan-hash", nil)
+	clog := &LogBuffer{}
+	co := NewCoordinator(ctx, c, "plan-hash", clog)
 	if _, err := co.AddData(path); err != nil {
 		t.Fatal(err)
 	}
@@ -83,7 +84,7 @@ func TestDuplicateAndForeignRepliesIgnored(t *testing.T) {
 		t.Fatalf("errors: %v", o.errs)
 	}
 	if o.res[0].Iterations != 999 {
-		t.Errorf("job 0: the reply with %d iterations was taken, not the first", o.res[0].Iterations)
+		t.Errorf("job 0: the reply with %d iterations was taken, not the first; coordinator log:\n%s", o.res[0].Iterations, clog.String())
 	}
 	want, _ := runner.ExecuteJob(path, jobs[1])
 	if math.Float64bits(o.res[1].LogLik) != math.Float64bits(want.LogLik) {
