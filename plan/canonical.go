@@ -42,6 +42,7 @@ type canonPlan struct {
 	Report      canonReport      `json:"report"`
 	Inference   canonInference   `json:"inference"`
 	Dictionary  map[string]any   `json:"dictionary,omitempty"`
+	Assumptions map[string]any   `json:"assumptions,omitempty"`
 }
 
 type canonData struct {
@@ -141,10 +142,11 @@ func (p *Plan) canonical() canonPlan {
 			ConfidenceLevel: p.Report.ConfidenceLevel,
 			Timestamp:       p.Report.Timestamp,
 		},
-		Inference:  p.Inference.canonical(),
-		Dictionary: p.canonicalDictionary(),
-		Outcomes:   []canonOutcome{},
-		Rules:      []map[string]any{},
+		Inference:   p.Inference.canonical(),
+		Dictionary:  p.canonicalDictionary(),
+		Assumptions: p.Assumptions.canonical(),
+		Outcomes:    []canonOutcome{},
+		Rules:       []map[string]any{},
 	}
 	if p.Data.Weights != "" {
 		c.Data.WeightKind = optional(p.Data.WeightKind)

@@ -23,6 +23,7 @@ func (d *decoder) check(p *Plan) {
 	d.checkRules(p)
 	if d.predictorsKnown(p) {
 		d.checkDictionary(p)
+		d.checkAssumptions(p)
 	}
 	if d.predictorsKnown(p) {
 		d.checkInference(p)

@@ -148,6 +148,9 @@ func (d *decoder) decodePlan(root *yaml.Node, p *Plan) {
 	if v := m.get("dictionary"); v != nil {
 		p.Dictionary = d.decodeDictionary(v)
 	}
+	if v := m.get("assumptions"); v != nil {
+		p.Assumptions = d.decodeAssumptions(v)
+	}
 	if v := m.get("deviations"); v != nil {
 		p.Deviations = d.decodeDeviations(v)
 	}

@@ -24,15 +24,16 @@ type Plan struct {
 	// Categorical declares the columns read as levels.
 	Categorical []CategoricalColumn
 	// Subset: the conditions a row must meet to be used.
-	Subset     []data.Condition
-	Models     Models
-	Tests      Tests
-	Rules      []Rule
-	Report     Report
-	Covariance string // "oim" (default), "eim", "robust", "cluster"
-	Inference  Inference
-	Dictionary []Entry     // what each used column holds (optional; when given, every used column)
-	Deviations []Deviation // why the plan departs from its frozen form; not in the canonical form
+	Subset      []data.Condition
+	Models      Models
+	Tests       Tests
+	Rules       []Rule
+	Report      Report
+	Covariance  string // "oim" (default), "eim", "robust", "cluster"
+	Inference   Inference
+	Assumptions *Assumptions // expected data, for rehearse and power (optional)
+	Dictionary  []Entry      // what each used column holds (optional; when given, every used column)
+	Deviations  []Deviation  // why the plan departs from its frozen form; not in the canonical form
 }
 
 // Data says where the observations are and how to read them.

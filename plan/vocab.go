@@ -39,7 +39,7 @@ var (
 
 // Keys allowed in each mapping.
 var (
-	topKeys     = []string{"version", "title", "seed", "data", "outcomes", "subset", "categorical", "predictors", "models", "tests", "rules", "covariance", "report", "inference", "dictionary", "deviations"}
+	topKeys     = []string{"version", "title", "seed", "data", "outcomes", "subset", "categorical", "predictors", "models", "tests", "rules", "covariance", "report", "inference", "dictionary", "assumptions", "deviations"}
 	dataKeys    = []string{"file", "missing", "missing_values", "weights", "weight_kind", "offset", "cluster"}
 	outcomeKeys = []string{"column", "categories", "label", "predictors"}
 	modelsKeys  = []string{"approaches", "direction", "levels", "links", "partial"}

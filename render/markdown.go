@@ -14,6 +14,7 @@ func build(r *runner.Result, dec *runner.Decisions, changes []string) *doc {
 	d := &doc{}
 	p := r.Plan
 	d.h(1, reportTitle(r))
+	writeSimulated(d, r)
 	writeRegistration(d, r)
 	d.p("This report was written by ordplan %s from the plan `%s` (sha256 `%s`) and the data file `%s` (sha256 `%s`). The plan fixed the candidate models and the decision rules before the models were fitted; the same plan and data give this report byte for byte.",
 		r.Version, dec.Plan.File, p.Hash, p.Data.File, r.DataHash)
@@ -41,6 +42,13 @@ func Markdown(r *runner.Result, dec *runner.Decisions, changes []string) []byte 
 }
 
 func reportTitle(r *runner.Result) string {
+	if r.Simulated != nil {
+		return SimulatedMark + ": " + plainTitle(r)
+	}
+	return plainTitle(r)
+}
+
+func plainTitle(r *runner.Result) string {
 	switch {
 	case r.Plan.Report.Title != "":
 		return r.Plan.Report.Title

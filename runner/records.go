@@ -23,8 +23,10 @@ type Decisions struct {
 	Data    DataRef `json:"data"`
 	// Registration is the plan compared with its lock (absent when not compared).
 	Registration *RegistrationRecord `json:"registration,omitempty"`
-	Notes        []string            `json:"notes"`
-	Outcomes     []OutcomeDecisions  `json:"outcomes"`
+	// Simulated is set when the data were simulated from the plan's assumptions.
+	Simulated *Simulation        `json:"simulated_data,omitempty"`
+	Notes     []string           `json:"notes"`
+	Outcomes  []OutcomeDecisions `json:"outcomes"`
 }
 
 // PlanRef names the plan of a run.
@@ -116,7 +118,7 @@ func BuildDecisions(r *Result) *Decisions {
 	d := &Decisions{Program: "ordplan", Version: r.Version,
 		Plan:  PlanRef{File: filepath.Base(p.Path), Title: p.Title, SHA256: p.Hash},
 		Data:  DataRef{File: p.Data.File, SHA256: r.DataHash},
-		Notes: nonNil(r.Notes), Registration: registrationRecord(r.Registration)}
+		Notes: nonNil(r.Notes), Registration: registrationRecord(r.Registration), Simulated: r.Simulated}
 	for _, or := range r.Outcomes {
 		od := OutcomeDecisions{Outcome: or.Outcome.Column, Categories: or.Data.Levels, Counts: or.Data.Counts,
 			RowsRead: or.Data.RowsRead, RowsUsed: or.Data.N, Dropped: nonNilDrops(or.Data.Dropped), NObs: or.Data.NObs(),

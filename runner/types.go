@@ -19,6 +19,8 @@ type Result struct {
 
 	// Registration is the plan compared with its lock (nil: not compared).
 	Registration *lock.Status
+	// Simulated is set when the data were simulated (ordplan rehearse).
+	Simulated *Simulation
 }
 
 // OutcomeResult holds the fits, tests and decisions of one outcome.

@@ -487,7 +487,7 @@ func TestBadInputCatalogueIsDocumented(t *testing.T) {
 		t.Fatal(err)
 	}
 	inDoc := map[string]bool{}
-	for _, m := range regexp.MustCompile(`(?m)^\| ([PDMWRVT][0-9]+) \|`).FindAllStringSubmatch(string(doc), -1) {
+	for _, m := range regexp.MustCompile(`(?m)^\| ([PDMWRVTA][0-9]+) \|`).FindAllStringSubmatch(string(doc), -1) {
 		inDoc[m[1]] = true
 	}
 	tested := map[string]bool{}

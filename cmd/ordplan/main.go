@@ -32,6 +32,8 @@ usage:
   ordplan worker --queue nats://HOST:PORT --queue-secret-file FILE [--cache DIR] [--jobs N]
   ordplan check PLAN.yaml [--no-data] [--allow-unregistered-changes]
   ordplan init PLAN.yaml [--data FILE | --header "a,b,c"] [--outcome COLUMN]
+  ordplan rehearse PLAN.yaml [--n N] [--out DIR]
+  ordplan power PLAN.yaml --n 200,400,800 [--replicates 500] [--out DIR]
   ordplan freeze PLAN.yaml [--registration ID] [--replace]
   ordplan fit --data FILE --outcome COL --predictors a,b,c [options]
   ordplan version
@@ -66,6 +68,10 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 		return cmdFreeze(args[1:], stdout, stderr)
 	case "init":
 		return cmdInit(args[1:], stdout, stderr)
+	case "rehearse":
+		return cmdRehearse(args[1:], stdout, stderr)
+	case "power":
+		return cmdPower(args[1:], stdout, stderr)
 	case "worker":
 		return cmdWorker(args[1:], stdout, stderr)
 	case "version":

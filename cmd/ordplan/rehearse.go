@@ -1,0 +1,107 @@
+package main
+
+import (
+	"bytes"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+
+	"ordplan/plan"
+	"ordplan/render"
+	"ordplan/runner"
+	"ordplan/runner/simulate"
+)
+
+const rehearseUsage = "usage: ordplan rehearse PLAN.yaml [--n N] [--out DIR] [--workers N]"
+
+// simulatedFile is the name of the simulated data among a rehearsal's outputs.
+const simulatedFile = "simulated-data.csv"
+
+// loadForSimulation reads a plan whose data need not exist yet.
+func loadForSimulation(path string) (*plan.Plan, error) {
+	src, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("cannot read plan: %w", err)
+	}
+	return plan.Parse(src, path)
+}
+
+// cmdRehearse runs the whole plan on data simulated from its assumptions.
+func cmdRehearse(args []string, stdout, stderr io.Writer) int {
+	fs := newFlags("rehearse", stderr)
+	n := fs.Int("n", 0, "rows to simulate (default: assumptions.n)")
+	out := fs.String("out", "", "output directory (default: out/<plan name>-rehearsal)")
+	workers := fs.Int("workers", 0, "fits run at once (default: all cores); results do not depend on it")
+	planPath, args := leadingArg(args)
+	if stop, code := parseFlags(fs, args); stop {
+		return code
+	}
+	if planPath == "" && fs.NArg() == 1 {
+		planPath = fs.Arg(0)
+	} else if fs.NArg() > 0 || planPath == "" {
+		fmt.Fprintln(stderr, rehearseUsage)
+		return exitUsage
+	}
+	p, err := loadForSimulation(planPath)
+	if err != nil {
+		fmt.Fprintln(stderr, err)
+		return exitFail
+	}
+	sim, err := simulate.New(p)
+	if err != nil {
+		return fail(stderr, err)
+	}
+	rows := p.Assumptions.N
+	if *n != 0 {
+		if *n < 10 {
+			fmt.Fprintln(stderr, "ordplan rehearse: --n must be at least 10")
+			return exitUsage
+		}
+		rows = *n
+	}
+	var buf bytes.Buffer
+	if err := sim.Write(&buf, rows, 0); err != nil {
+		return fail(stderr, err)
+	}
+	tmp, err := os.MkdirTemp("", "ordplan-rehearse-")
+	if err != nil {
+		return fail(stderr, err)
+	}
+	defer os.RemoveAll(tmp)
+	q := *p
+	q.Data.File = simulatedFile
+	q.Data.Path = filepath.Join(tmp, simulatedFile)
+	if err := os.WriteFile(q.Data.Path, buf.Bytes(), 0o644); err != nil {
+		return fail(stderr, err)
+	}
+	res, err := runner.Run(&q, runner.Options{Workers: *workers})
+	if err != nil {
+		return fail(stderr, fmt.Errorf("rehearsal on simulated data: %w", err))
+	}
+	res.Simulated = &runner.Simulation{Command: "rehearse", N: rows, Seed: p.Seed, Link: sim.Link.String(), File: simulatedFile}
+	dec := runner.BuildDecisions(res)
+	files, err := render.Outputs(res, dec, nil)
+	if err != nil {
+		return fail(stderr, err)
+	}
+	files[simulatedFile] = buf.Bytes()
+	dir := *out
+	if dir == "" {
+		base := filepath.Base(planPath)
+		dir = filepath.Join("out", base[:len(base)-len(filepath.Ext(base))]+"-rehearsal")
+	}
+	if err := runner.WriteFiles(res, dir, files); err != nil {
+		return fail(stderr, err)
+	}
+	fmt.Fprintf(stdout, "%s: %d rows simulated from the plan's assumptions\n", render.SimulatedMark, rows)
+	for _, o := range dec.Outcomes {
+		chosen := "no model chosen"
+		if o.Chosen != nil {
+			chosen = "chosen: " + *o.Chosen
+		}
+		fmt.Fprintf(stdout, "%s: %s\n", o.Outcome, chosen)
+	}
+	fmt.Fprintf(stdout, "report: %s\n", filepath.Join(dir, "report.html"))
+	return exitOK
+}

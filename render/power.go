@@ -1,0 +1,162 @@
+package render
+
+import (
+	"fmt"
+	"strings"
+
+	"github.com/go-echarts/go-echarts/v2/charts"
+	"github.com/go-echarts/go-echarts/v2/opts"
+
+	"ordplan/runner"
+	"ordplan/runner/simulate"
+)
+
+// PowerOutputs renders a power study: power.md, power.html (with the
+// chart of power against n) and power.json.
+func PowerOutputs(pr *simulate.PowerResult) (map[string][]byte, error) {
+	js, err := runner.MarshalStable(pr)
+	if err != nil {
+		return nil, err
+	}
+	d := &doc{}
+	title := SimulatedMark + ": power and model choice"
+	if pr.Title != "" {
+		title += ": " + pr.Title
+	}
+	d.h(1, title)
+	sizes := make([]string, len(pr.Sizes))
+	for i, n := range pr.Sizes {
+		sizes[i] = fmt.Sprint(n)
+	}
+	d.p("**%s.** No real observation was used: `ordplan power` drew %d data sets at each sample size (%s) from the plan's `assumptions` and data dictionary (seed %d, cumulative %s model generating each outcome) and ran the plan's whole decision procedure on each: the grid of fits, the tests, the rules in order and the plan's hypotheses in the chosen model (Wald tests at alpha %g). Written by ordplan %s from the plan `%s` (sha256 `%s`).",
+		SimulatedMark, pr.Replicates, strings.Join(sizes, ", "), pr.Seed, pr.Link, pr.Alpha, pr.Version, pr.PlanFile, pr.PlanSHA256)
+	d.p("Every rate is a share of the %d replicates of a size, with its Monte Carlo standard error sqrt(p(1-p)/R) in brackets.", pr.Replicates)
+	for _, op := range pr.Outcomes {
+		d.h(2, "Outcome `"+op.Outcome+"`")
+		writePowerHypotheses(d, op)
+		writePowerModels(d, op)
+		writePowerProblems(d, op)
+	}
+	d.h(2, "Assumptions and limits")
+	d.list([]string{
+		"Power is computed under the stated assumptions only: other category proportions or effects, predictors that are correlated (they are drawn independently here), missing values or clustering give other numbers.",
+		"A hypothesis counts as rejected only in the model the rules chose; a replicate whose chosen model does not have the hypothesis's parameters, or where no model was chosen, counts as not rejected (the column \"not testable\").",
+		"The share of replicates choosing each model shows whether the rules find the structure that generated the data: a cumulative model with the stated parallel and nonparallel effects.",
+	})
+	page, err := d.html(title)
+	if err != nil {
+		return nil, err
+	}
+	return map[string][]byte{"power.md": d.markdown(), "power.html": page, "power.json": js}, nil
+}
+
+func fmtRate(r simulate.Rate) string {
+	return fmt.Sprintf("%.3f (%.3f)", r.Rate, r.SE)
+}
+
+func writePowerHypotheses(d *doc, op simulate.OutcomePower) {
+	if len(op.Sizes) == 0 || len(op.Sizes[0].Hypotheses) == 0 {
+		d.p("The plan states no hypotheses (`inference.hypotheses`), so no power is computed; the model choice is below.")
+		return
+	}
+	d.h(3, "Power of the plan's hypotheses")
+	head := []string{"Hypothesis (plan line)"}
+	for _, s := range op.Sizes {
+		head = append(head, fmt.Sprintf("n = %d", s.N))
+	}
+	head = append(head, "not testable")
+	var rows [][]string
+	for hi, h := range op.Sizes[0].Hypotheses {
+		row := []string{fmt.Sprintf("`%s` (%d)", h.Hypothesis, h.Line)}
+		var un []string
+		for _, s := range op.Sizes {
+			row = append(row, fmtRate(s.Hypotheses[hi].Power))
+			un = append(un, fmt.Sprint(s.Hypotheses[hi].Untested))
+		}
+		rows = append(rows, append(row, strings.Join(un, " / ")))
+	}
+	d.table(head, rows)
+	// Power against n, one line per hypothesis.
+	id := d.chartID()
+	l := charts.NewLine()
+	xs := make([]float64, len(op.Sizes))
+	for i, s := range op.Sizes {
+		xs[i] = float64(s.N)
+	}
+	l.SetGlobalOptions(append(baseOpts(id, "Power against sample size", op.Outcome+", simulated", 380, opts.Grid{Left: "8%", Right: "6%", Bottom: "18%"}),
+		charts.WithXAxisOpts(opts.XAxis{Name: "n", Type: "value"}),
+		charts.WithYAxisOpts(opts.YAxis{Name: "power", Type: "value", Min: 0, Max: 1}))...)
+	for hi, h := range op.Sizes[0].Hypotheses {
+		ys := make([]float64, len(op.Sizes))
+		for i, s := range op.Sizes {
+			ys[i] = s.Hypotheses[hi].Power.Rate
+		}
+		l.AddSeries(h.Hypothesis, xyData(xs, ys), lineStyle(categoryColor(hi, max(2, len(op.Sizes[0].Hypotheses))), 2, false, true)...)
+	}
+	d.charts("Chart in power.html: power of each hypothesis against n.", newChart(id, 380, "Power of each plan hypothesis (share of replicates whose chosen model rejects it) against the sample size.", l))
+}
+
+func writePowerModels(d *doc, op simulate.OutcomePower) {
+	d.h(3, "How often each candidate model is chosen")
+	models := []string{}
+	for _, s := range op.Sizes {
+		for _, c := range s.Chosen {
+			if !contains(models, c.Model) {
+				models = append(models, c.Model)
+			}
+		}
+	}
+	head := []string{"Model"}
+	for _, s := range op.Sizes {
+		head = append(head, fmt.Sprintf("n = %d", s.N))
+	}
+	var rows [][]string
+	for _, m := range models {
+		row := []string{"`" + m + "`"}
+		for _, s := range op.Sizes {
+			cell := "0"
+			for _, c := range s.Chosen {
+				if c.Model == m {
+					cell = fmtRate(c.Share)
+				}
+			}
+			row = append(row, cell)
+		}
+		rows = append(rows, row)
+	}
+	d.table(head, rows)
+}
+
+func writePowerProblems(d *doc, op simulate.OutcomePower) {
+	d.h(3, "Separation, non-convergence and failed runs")
+	head := []string{"Replicates with"}
+	for _, s := range op.Sizes {
+		head = append(head, fmt.Sprintf("n = %d", s.N))
+	}
+	rowOf := func(name string, f func(simulate.SizeResult) simulate.Rate) []string {
+		row := []string{name}
+		for _, s := range op.Sizes {
+			row = append(row, fmtRate(f(s)))
+		}
+		return row
+	}
+	d.table(head, [][]string{
+		rowOf("a candidate fit without a finite maximum (separation)", func(s simulate.SizeResult) simulate.Rate { return s.Separation }),
+		rowOf("a candidate fit that did not converge", func(s simulate.SizeResult) simulate.Rate { return s.NotConverged }),
+		rowOf("a plan that could not be run", func(s simulate.SizeResult) simulate.Rate { return s.Failed }),
+	})
+	for _, s := range op.Sizes {
+		if s.FirstFailure != "" {
+			d.p("At n = %d the first failed replicate said: %s", s.N, strings.ReplaceAll(s.FirstFailure, "\n", "; "))
+		}
+	}
+}
+
+func contains(xs []string, s string) bool {
+	for _, x := range xs {
+		if x == s {
+			return true
+		}
+	}
+	return false
+}
