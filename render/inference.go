@@ -2,6 +2,8 @@ package render
 
 import (
 	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
 	"fmt"
 	"strconv"
 
@@ -52,14 +54,24 @@ func writeNewRows(d *doc, or *runner.OutcomeResult) {
 		nr.Rows.N, nr.File, nr.Rows.RowsRead, len(nr.Rows.Skipped), predictionsFile(or), len(or.Data.Levels), neg)
 }
 
-// predictionsFile names the predictions file of an outcome, keeping only
-// letters, digits, '-' and '_' of the column name.
+// predictionsFile names the predictions file of an outcome: the column
+// name with characters other than letters, digits, '-' and '_' replaced by
+// '_', and then, when something was replaced, the first 8 hex digits of the
+// name's SHA-256, so that outcomes "safety.2" and "safety_2" get distinct
+// files.
 func predictionsFile(or *runner.OutcomeResult) string {
-	name := []rune(or.Outcome.Column)
+	col := or.Outcome.Column
+	name := []rune(col)
+	changed := false
 	for i, c := range name {
 		if !(c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' || c == '-' || c == '_') {
 			name[i] = '_'
+			changed = true
 		}
+	}
+	if changed {
+		h := sha256.Sum256([]byte(col))
+		return "predictions-" + string(name) + "-" + hex.EncodeToString(h[:4]) + ".csv"
 	}
 	return "predictions-" + string(name) + ".csv"
 }

@@ -1,6 +1,9 @@
 package render
 
 import (
+	"fmt"
+	"strings"
+
 	"ordplan/runner"
 )
 
@@ -21,9 +24,16 @@ func Outputs(r *runner.Result, dec *runner.Decisions, changes []string) (map[str
 		"report.md":      d.markdown(),
 		"report.html":    page,
 	}
+	owner := map[string]string{}
 	for _, or := range r.Outcomes {
 		if or.NewRows != nil && or.NewRows.Pred != nil {
-			files[predictionsFile(or)] = predictionsCSV(or)
+			name := predictionsFile(or)
+			key := strings.ToLower(name)
+			if prev, dup := owner[key]; dup {
+				return nil, fmt.Errorf("outcomes %q and %q would write the same predictions file %s", prev, or.Outcome.Column, name)
+			}
+			owner[key] = or.Outcome.Column
+			files[name] = predictionsCSV(or)
 		}
 	}
 	return files, nil

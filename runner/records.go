@@ -9,6 +9,7 @@ import (
 	"os"
 	"path/filepath"
 	"sort"
+	"strings"
 
 	"ordplan/runner/data"
 	"ordplan/runner/design"
@@ -211,7 +212,9 @@ type RunRecord struct {
 }
 
 // WriteFiles writes the named files into dir, then run.json with their
-// hashes. It returns the decisions bytes.
+// hashes, all or nothing (see writeAll): a failure leaves the previous
+// run's files as they were, and no symlink in dir is written through. The
+// caller holds the folder's lock (LockOutput).
 func WriteFiles(r *Result, dir string, files map[string][]byte) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return fmt.Errorf("output directory: %w", err)
@@ -221,15 +224,20 @@ func WriteFiles(r *Result, dir string, files map[string][]byte) error {
 		Data: DataRef{File: r.Plan.Data.File, SHA256: r.DataHash}, Seed: r.Plan.Seed, Outputs: map[string]string{}}
 	rec.Timestamp = r.Started
 	rec.Registration = registrationRecord(r.Registration)
-	names := make([]string, 0, len(files))
+	names := make([]string, 0, len(files)+1)
 	for n := range files {
+		if n == "run.json" {
+			return fmt.Errorf("an output may not be called run.json")
+		}
 		names = append(names, n)
 	}
 	sort.Strings(names)
+	seen := map[string]string{}
 	for _, n := range names {
-		if err := os.WriteFile(filepath.Join(dir, n), files[n], 0o644); err != nil {
-			return err
+		if prev, dup := seen[strings.ToLower(n)]; dup {
+			return fmt.Errorf("outputs %s and %s differ only in letter case; on some file systems one would replace the other", prev, n)
 		}
+		seen[strings.ToLower(n)] = n
 		s := sha256.Sum256(files[n])
 		rec.Outputs[n] = hex.EncodeToString(s[:])
 	}
@@ -237,5 +245,10 @@ func WriteFiles(r *Result, dir string, files map[string][]byte) error {
 	if err != nil {
 		return err
 	}
-	return os.WriteFile(filepath.Join(dir, "run.json"), b, 0o644)
+	all := make(map[string][]byte, len(files)+1)
+	for n, c := range files {
+		all[n] = c
+	}
+	all["run.json"] = b
+	return writeAll(dir, append(names, "run.json"), all)
 }

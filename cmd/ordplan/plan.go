@@ -118,6 +118,11 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 		base := filepath.Base(planPath)
 		dir = filepath.Join("out", base[:len(base)-len(filepath.Ext(base))])
 	}
+	lock, err := runner.LockOutput(dir)
+	if err != nil {
+		return fail(stderr, err)
+	}
+	defer lock.Unlock()
 	opt := runner.Options{Workers: *workers}
 	if !*quiet && isTerminal(os.Stderr) {
 		opt.Progress = os.Stderr
