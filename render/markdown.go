@@ -127,7 +127,7 @@ func writeLimits(d *doc) {
 	d.h(2, "Assumptions and limits")
 	d.list([]string{
 		"The models describe how the outcome is associated with the predictors in these data. They do not show that a predictor causes a change in the outcome; neither do the predicted probabilities or the marginal effects, which are summaries of the same fitted association.",
-		"Each model assumes that observations are independent given the predictors, that the link function is right, and that the predictors enter linearly as listed in the plan.",
+		"Each model assumes that observations are independent given the predictors, that the link function is right, and that the predictors enter as the plan's terms state them (linearly, or through the stated coding of categorical predictors, transformations, polynomials, splines and interactions); a relation of another shape is not found by the model.",
 		"Tests of the parallel-lines assumption reject easily in large samples: a small p-value can reflect a difference between boundaries too small to matter in practice. Look at the effects across boundaries before giving up a simpler model.",
 		"Cumulative partial and nonparallel models can predict negative category probabilities for some covariate values (their cumulative probabilities cross). The number of rows of the data where this happens is shown for every model, and predictions on the grid of the focus predictor are checked too; predictions outside the observed covariate range are more exposed.",
 		"Constrained (common-factor) models can have several local maxima; ordplan fits them from several starting points and keeps the best.",

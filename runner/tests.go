@@ -1,7 +1,6 @@
 package runner
 
 import (
-	"fmt"
 	"slices"
 
 	"ordplan/plan"
@@ -140,12 +139,12 @@ func scoreOf(d *fit.Data, par, np *FitEntry) fit.Test {
 }
 
 // brantTerm is the Brant test of one term: the per-column test for a
-// single-column term; a term of several columns needs the joint test,
-// which the Brant computation does not give, so it is reported as not
-// computed (the Wald, LR and score tests cover such terms jointly).
+// single-column term, the joint test of its columns for a term of several.
 func brantTerm(b *fit.BrantResult, d *fit.Data, term fit.Term) fit.Test {
 	if len(term.Columns) != 1 {
-		return missingTest("brant", fmt.Sprintf("a term of %d columns is tested jointly by the Wald, likelihood-ratio and score tests; the Brant test is reported per single-column term only", len(term.Columns)))
+		t := b.Joint(term.Columns)
+		t.Name = "brant"
+		return t
 	}
 	k := slices.Index(d.Predictors, term.Columns[0])
 	t := b.PerVariable[k]

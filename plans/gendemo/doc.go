@@ -18,6 +18,7 @@
 //	child_home      1 if a child lives in the home, else 0
 //	years_resident  years lived on the street, 0..40, one decimal (about 2% empty = missing)
 //	cyclist         1 if the resident cycles regularly, else 0
+//	street_type     residential, through_road or cul_de_sac (text)
 //	district        district id d01..d24 (usable as a cluster id)
 //
 // # How the predictors are drawn
@@ -29,7 +30,8 @@
 // child_home ~ Bernoulli(0.45) below age 50, else Bernoulli(0.12).
 // years_resident is exponential with mean 11, capped at age-18 and at 40,
 // rounded to one decimal. cyclist ~ Bernoulli(0.35) below age 40, else
-// Bernoulli(0.20). There are no frequency weights: every row is one
+// Bernoulli(0.20). street_type is residential with probability 0.55,
+// through_road 0.25, cul_de_sac 0.20. There are no frequency weights: every row is one
 // resident.
 //
 // # Outcome model (the true parameter values)
@@ -39,7 +41,9 @@
 //
 //	logit P(safety <= j | x) = theta_j - eta_j(x)
 //	eta_j(x) = bPilot_j*pilot + bFemale_j*female + bAge*age
-//	         + bChild*child_home + bYears*years_resident + bCyclist*cyclist
+//	         + bChild*child_home + bYearsLog*log(years_resident + 1)
+//	         + bCyclist*cyclist + bStreet[street_type]
+//	         + bPilotThrough*pilot*[street_type = through_road]
 //
 // so a positive coefficient moves answers towards "very_safe". The pilot
 // and female effects differ across the boundaries (nonparallel); the other
@@ -50,8 +54,10 @@
 //	bFemale_j = (-0.55, -0.40, -0.25, -0.10)
 //	bAge      = -0.015   (per year)
 //	bChild    = -0.40
-//	bYears    =  0.020   (per year)
+//	bYearsLog =  0.25    (per unit of log(years_resident + 1))
 //	bCyclist  =  0.70
+//	bStreet   = (0, -0.60, 0.35) for residential, through_road, cul_de_sac
+//	bPilotThrough = 0.55 (the pilot works better on through roads)
 //
 // The model is drawn from with the complete predictor values; afterwards age
 // is blanked completely at random with probability 0.01 and years_resident

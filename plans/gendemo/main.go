@@ -50,7 +50,7 @@ func writeFile(path string) error {
 // generate writes the header and the nRows simulated rows to w.
 func generate(w io.Writer) error {
 	g := newGen(seedHi, seedLo)
-	if _, err := fmt.Fprintln(w, "safety,pilot,female,age,child_home,years_resident,cyclist,district"); err != nil {
+	if _, err := fmt.Fprintln(w, "safety,pilot,female,age,child_home,years_resident,cyclist,street_type,district"); err != nil {
 		return err
 	}
 	for i := 0; i < nRows; i++ {

@@ -16,8 +16,14 @@ var (
 	bFemale   = []float64{-0.55, -0.40, -0.25, -0.10}
 	bAge      = -0.015
 	bChild    = -0.40
-	bYears    = 0.020
+	bYearsLog = 0.25 // per unit of log(years_resident + 1)
 	bCyclist  = 0.70
+	// street_type: residential (reference), through_road, cul_de_sac
+	streetTypes = []string{"residential", "through_road", "cul_de_sac"}
+	streetShare = []float64{0.55, 0.25, 0.20}
+	bStreet     = []float64{0, -0.60, 0.35}
+	// the pilot works better on through roads: pilot x through_road
+	bPilotThrough = 0.55
 	pMissAge  = 0.01
 	pMissYear = 0.02
 )
@@ -51,6 +57,7 @@ type resident struct {
 	age                           int
 	years                         float64
 	district                      int
+	street                        int
 	ageMissing, yearsMissing      bool
 }
 
@@ -81,6 +88,10 @@ func (g *gen) resident() (resident, error) {
 	y = math.Min(y, math.Min(float64(r.age-18), 40))
 	r.years = math.Round(y*10) / 10
 	r.cyclist = g.bern(pCyc)
+	u := g.unif()
+	for r.street = 0; r.street < len(streetShare)-1 && u >= streetShare[r.street]; r.street++ {
+		u -= streetShare[r.street]
+	}
 
 	s, err := r.draw(g.unif())
 	if err != nil {
@@ -95,7 +106,10 @@ func (g *gen) resident() (resident, error) {
 // draw returns the category whose cumulative probability interval holds u.
 func (r *resident) draw(u float64) (int, error) {
 	common := bAge*float64(r.age) + bChild*float64(r.child) +
-		bYears*r.years + bCyclist*float64(r.cyclist)
+		bYearsLog*math.Log(r.years+1) + bCyclist*float64(r.cyclist) + bStreet[r.street]
+	if r.street == 1 {
+		common += bPilotThrough * float64(r.pilot)
+	}
 	prev := 0.0
 	for j := range theta {
 		eta := common + bPilot[j]*float64(r.pilot) + bFemale[j]*float64(r.female)
@@ -128,6 +142,7 @@ func (r *resident) csv() string {
 		strconv.Itoa(r.child),
 		years,
 		strconv.Itoa(r.cyclist),
+		streetTypes[r.street],
 		fmt.Sprintf("d%02d", r.district+1),
 	}, ",") + "\n"
 }

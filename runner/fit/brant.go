@@ -16,6 +16,40 @@ type BrantResult struct {
 	Omnibus     Test
 	PerVariable []Test      // one per predictor, Name = predictor
 	Slopes      [][]float64 // [m][k] slopes of the binary logits
+	// the stacked slopes and their joint covariance, for tests of groups
+	// of predictors
+	beta, cov  []float64
+	predictors []string
+}
+
+// Joint is the Brant test that every predictor in names has the same
+// slope in every binary logit, jointly (df: len(names) (J-2)): the test
+// of a term whose columns are names.
+func (br *BrantResult) Joint(names []string) Test {
+	if !br.OK {
+		return failedTest("brant", "%s", br.Reason)
+	}
+	K := len(br.predictors)
+	q := len(br.Slopes)
+	N := q * K
+	var rows [][]float64
+	for _, n := range names {
+		k := indexOf(br.predictors, n)
+		if k < 0 {
+			return failedTest("brant", "%s is not a predictor", n)
+		}
+		for m := 1; m < q; m++ {
+			r := make([]float64, N)
+			r[k] = 1
+			r[m*K+k] = -1
+			rows = append(rows, r)
+		}
+	}
+	x, err := waldStat(rows, br.beta, br.cov)
+	if err != nil {
+		return failedTest("brant", "%v", err)
+	}
+	return chi2Test("brant", x, len(rows))
 }
 
 // binaryFits fits the J-1 binary logits of 1[y > m].
@@ -173,6 +207,7 @@ func Brant(d *Data, opt Options) *BrantResult {
 		return br
 	}
 	br.Omnibus = chi2Test("brant", x, len(all))
+	br.beta, br.cov, br.predictors = beta, V, d.Predictors
 	br.OK = true
 	return br
 }
