@@ -24,8 +24,8 @@ var (
 	bStreet     = []float64{0, -0.60, 0.35}
 	// the pilot works better on through roads: pilot x through_road
 	bPilotThrough = 0.55
-	pMissAge  = 0.01
-	pMissYear = 0.02
+	pMissAge      = 0.01
+	pMissYear     = 0.02
 )
 
 // gen draws from a PCG source only through its 64-bit output, so that the
