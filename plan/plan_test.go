@@ -59,7 +59,8 @@ func TestExamplePlan(t *testing.T) {
 		Categories: []string{"very_unsafe", "unsafe", "neutral", "safe", "very_safe"},
 		Label:      "Feels safe cycling on own street",
 	}})
-	check("Predictors", p.Predictors, []string{"pilot", "female", "age", "child_home", "years_resident", "cyclist"})
+	check("Predictors", p.Predictors, []string{"pilot", "female", "age", "child_home", "years_log", "cyclist", "street_type", "pilot&street_type"})
+	check("Sources", p.SourceColumns(), []string{"pilot", "female", "age", "child_home", "years_resident", "cyclist", "street_type"})
 	check("Models", p.Models, Models{
 		Approaches: []string{"cumulative", "stage", "adjacent"},
 		Direction:  "forward",
@@ -87,6 +88,7 @@ func TestExamplePlan(t *testing.T) {
 	check("Report", p.Report, Report{
 		Title:           "Cycling safety after the quiet-streets pilot",
 		FocusPredictor:  "age",
+		PanelsBy:        "street_type",
 		ConfidenceLevel: 0.95,
 	})
 }
