@@ -33,6 +33,9 @@ func build(r *runner.Result, dec *runner.Decisions, changes []string) *doc {
 		writeOutcome(d, r, or)
 	}
 	writeLimits(d)
+	writeMethods(d, r)
+	writeReproducibility(d, r)
+	writeFilesSection(d, r)
 	return d
 }
 

@@ -26,6 +26,9 @@ func Outputs(r *runner.Result, dec *runner.Decisions, changes []string) (map[str
 	}
 	owner := map[string]string{}
 	for _, or := range r.Outcomes {
+		for _, f := range tableFiles(r, or) {
+			files[f.name] = f.data
+		}
 		if or.NewRows != nil && or.NewRows.Pred != nil {
 			name := predictionsFile(or)
 			key := strings.ToLower(name)

@@ -209,6 +209,9 @@ type RunRecord struct {
 	Registration *RegistrationRecord `json:"registration,omitempty"`
 	Outputs      map[string]string   `json:"outputs_sha256"`
 	Timestamp    string              `json:"timestamp,omitempty"`
+	GoVersion    string              `json:"go_version"`
+	Platform     string              `json:"os_arch"`
+	Command      string              `json:"command_line,omitempty"`
 }
 
 // WriteFiles writes the named files into dir, then run.json with their
@@ -223,6 +226,7 @@ func WriteFiles(r *Result, dir string, files map[string][]byte) error {
 		Plan: PlanRef{File: filepath.Base(r.Plan.Path), Title: r.Plan.Title, SHA256: r.Plan.Hash},
 		Data: DataRef{File: r.Plan.Data.File, SHA256: r.DataHash}, Seed: r.Plan.Seed, Outputs: map[string]string{}}
 	rec.Timestamp = r.Started
+	rec.GoVersion, rec.Platform, rec.Command = r.GoVersion, r.Platform, r.Command
 	rec.Registration = registrationRecord(r.Registration)
 	names := make([]string, 0, len(files)+1)
 	for n := range files {

@@ -39,7 +39,8 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 		return nil, err
 	}
 	sum := sha256.Sum256(raw)
-	res := &Result{Plan: p, DataHash: hex.EncodeToString(sum[:]), Version: Version}
+	res := &Result{Plan: p, DataHash: hex.EncodeToString(sum[:]), Version: Version,
+		GoVersion: runtime.Version(), Platform: runtime.GOOS + "/" + runtime.GOARCH}
 	if p.Report.Timestamp {
 		res.Started = time.Now().UTC().Format(time.RFC3339)
 	}

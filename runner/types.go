@@ -17,6 +17,10 @@ type Result struct {
 	Notes    []string // run-level remarks (covariance, weights)
 	Started  string   // UTC start time, only when the plan asks for timestamps
 
+	GoVersion string // the Go release the program was built with
+	Platform  string // operating system/architecture
+	Command   string // the command line, when the ordplan command ran the plan
+
 	// Registration is the plan compared with its lock (nil: not compared).
 	Registration *lock.Status
 	// Simulated is set when the data were simulated (ordplan rehearse).

@@ -5,6 +5,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"strings"
 
 	"ordplan/plan"
 	"ordplan/render"
@@ -75,6 +76,7 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 }
 
 func cmdRun(args []string, stdout, stderr io.Writer) int {
+	rawArgs := append([]string(nil), args...)
 	fs := newFlags("run", stderr)
 	out := fs.String("out", "", "output directory (default: out/<plan name>)")
 	previous := fs.String("previous", "", "output directory of an earlier run: say what changed in the decisions")
@@ -135,6 +137,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
+	res.Command = commandLine(append([]string{"ordplan", "run"}, rawArgs...))
 	res.Registration = reg
 	dec := runner.BuildDecisions(res)
 	var changes []string
@@ -174,4 +177,17 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 func isTerminal(f *os.File) bool {
 	st, err := f.Stat()
 	return err == nil && st.Mode()&os.ModeCharDevice != 0
+}
+
+// commandLine writes arguments as a shell would need them typed: an
+// argument with a space, quote or shell character is single-quoted.
+func commandLine(args []string) string {
+	out := make([]string, len(args))
+	for i, a := range args {
+		if a == "" || strings.ContainsAny(a, " \t\n'\"\\$`*?[]{}()<>|&;#~!") {
+			a = "'" + strings.ReplaceAll(a, "'", `'\''`) + "'"
+		}
+		out[i] = a
+	}
+	return strings.Join(out, " ")
 }

@@ -1,0 +1,216 @@
+package render
+
+import (
+	"fmt"
+	"slices"
+	"strings"
+
+	"ordplan/runner"
+)
+
+// A methods paragraph generated from the plan and the run, in the
+// project's own words, citing the published methods it names; and the
+// block that says exactly what produced the report.
+
+// reference is one published source the methods paragraph may cite.
+type reference struct{ key, text string }
+
+var references = []reference{
+	{"mccullagh", "McCullagh, P. (1980). Regression models for ordinal data. Journal of the Royal Statistical Society B 42:109-142."},
+	{"fienberg", "Fienberg, S.E. (1980). The Analysis of Cross-Classified Categorical Data, 2nd ed. MIT Press."},
+	{"mare", "Mare, R.D. (1980). Social background and school continuation decisions. Journal of the American Statistical Association 75:295-305."},
+	{"agresti", "Agresti, A. (2010). Analysis of Ordinal Categorical Data, 2nd ed. Wiley."},
+	{"peterson", "Peterson, B. & Harrell, F.E. (1990). Partial proportional odds models for ordinal response variables. Applied Statistics 39:205-217."},
+	{"hauser", "Hauser, R.M. & Andrew, M. (2006). Another look at the stratification of educational transitions. Sociological Methodology 36:1-26."},
+	{"anderson", "Anderson, J.A. (1984). Regression and ordered categorical variables. Journal of the Royal Statistical Society B 46:1-30."},
+	{"brant", "Brant, R. (1990). Assessing proportionality in the proportional odds model for ordinal logistic regression. Biometrics 46:1171-1178."},
+	{"wolfe", "Wolfe, R. & Gould, W. (1998). An approximate likelihood-ratio test for ordinal response models. Stata Technical Bulletin 42:24-27."},
+	{"williams", "Williams, R. (2006). Generalized ordered logit/partial proportional odds models for ordinal dependent variables. The Stata Journal 6:58-82."},
+	{"white", "White, H. (1980). A heteroskedasticity-consistent covariance matrix estimator and a direct test for heteroskedasticity. Econometrica 48:817-838."},
+	{"mcfadden", "McFadden, D. (1974). Conditional logit analysis of qualitative choice behavior. In P. Zarembka (ed.), Frontiers in Econometrics, 105-142. Academic Press."},
+	{"nagelkerke", "Nagelkerke, N.J.D. (1991). A note on a general definition of the coefficient of determination. Biometrika 78:691-692."},
+	{"mckelvey", "McKelvey, R.D. & Zavoina, W. (1975). A statistical model for the analysis of ordinal level dependent variables. Journal of Mathematical Sociology 4:103-120."},
+	{"lipsitz", "Lipsitz, S.R., Fitzmaurice, G.M. & Molenberghs, G. (1996). Goodness-of-fit tests for ordinal response regression models. Applied Statistics 45:175-190."},
+}
+
+// citer numbers references in the order the text first cites them.
+type citer struct{ used []string }
+
+func (c *citer) cite(keys ...string) string {
+	var nums []string
+	for _, k := range keys {
+		i := slices.Index(c.used, k)
+		if i < 0 {
+			c.used = append(c.used, k)
+			i = len(c.used) - 1
+		}
+		nums = append(nums, fmt.Sprint(i+1))
+	}
+	return "[" + strings.Join(nums, ", ") + "]"
+}
+
+func (c *citer) list() []string {
+	var out []string
+	for i, k := range c.used {
+		for _, r := range references {
+			if r.key == k {
+				out = append(out, fmt.Sprintf("[%d] %s", i+1, r.text))
+			}
+		}
+	}
+	return out
+}
+
+// writeMethods writes a methods paragraph for each outcome, ready to paste
+// and edit, and the references it cites.
+func writeMethods(d *doc, r *runner.Result) {
+	d.h(2, "Methods (draft)")
+	d.p("A draft of the methods section generated from the plan and this run, to adapt before use. Numbers in brackets refer to the references below.")
+	p := r.Plan
+	c := &citer{}
+	for _, or := range r.Outcomes {
+		var s []string
+		ds := or.Data
+		s = append(s, fmt.Sprintf("The outcome %s (%d ordered categories, from %s to %s) was analysed with ordinal regression models fitted by maximum likelihood (ordplan %s).",
+			or.Outcome.Label, len(ds.Levels), ds.Levels[0], ds.Levels[len(ds.Levels)-1], r.Version))
+		if ds.RowsDropped > 0 {
+			s = append(s, fmt.Sprintf("Of %d rows, %d were used; %d were dropped for missing values or zero weight before any model was fitted.", ds.RowsRead, ds.N, ds.RowsDropped))
+		} else {
+			s = append(s, fmt.Sprintf("All %d rows were used.", ds.N))
+		}
+		var comps []string
+		for _, a := range p.Models.Approaches {
+			switch a {
+			case "cumulative":
+				comps = append(comps, "cumulative logits (the proportional odds model when effects are parallel) "+c.cite("mccullagh"))
+			case "stage":
+				comps = append(comps, "continuation-ratio (sequential) comparisons "+c.cite("fienberg", "mare"))
+			case "adjacent":
+				comps = append(comps, "adjacent-category comparisons "+c.cite("agresti"))
+			}
+		}
+		var effects []string
+		for _, lv := range p.Models.Levels {
+			switch lv {
+			case runner.LevelParallel:
+				effects = append(effects, "parallel effects")
+			case runner.LevelPartial:
+				effects = append(effects, "partial effects free to differ across category boundaries for a subset of predictors "+c.cite("peterson"))
+			case runner.LevelConstrained:
+				effects = append(effects, "partial effects constrained to a common factor across boundaries "+c.cite("peterson", "hauser"))
+			case runner.LevelNonparallel:
+				effects = append(effects, "fully nonparallel effects")
+			case runner.LevelStereotype:
+				effects = append(effects, "the one-dimensional stereotype model "+c.cite("anderson"))
+			}
+		}
+		s = append(s, fmt.Sprintf("The candidate models, fixed in an analysis plan before fitting (plan SHA-256 %s), crossed %s with %s, using the %s link%s.",
+			short(p.Hash), joinAnd(comps), joinAnd(effects), joinAnd(p.Models.Links), plural(len(p.Models.Links))))
+		if sel := p.Models.Partial.Select; sel != nil {
+			s = append(s, fmt.Sprintf("The predictors allowed non-parallel effects were selected by backward stepwise imposition of parallel constraints with %s tests at alpha = %g %s.", testLabel(sel.Test), sel.Alpha, c.cite("williams")))
+		}
+		if len(p.Tests.ParallelLines) > 0 {
+			var tests []string
+			for _, t := range p.Tests.ParallelLines {
+				switch t {
+				case "brant":
+					tests = append(tests, "Brant "+c.cite("brant"))
+				case "wolfe_gould":
+					tests = append(tests, "Wolfe-Gould "+c.cite("wolfe"))
+				case "lr":
+					tests = append(tests, "likelihood-ratio")
+				default:
+					tests = append(tests, testLabel(t))
+				}
+			}
+			s = append(s, fmt.Sprintf("The parallel-lines assumption was tested by %s tests (alpha = %g), overall and for each predictor.", joinAnd(tests), p.Tests.Alpha))
+		}
+		cov := covarianceOfPlan(r)
+		if strings.Contains(cov, "sandwich") {
+			cov += " " + c.cite("white")
+		}
+		s = append(s, fmt.Sprintf("Standard errors came from the %s.", cov))
+		var rules []string
+		for i, ro := range or.Rules {
+			rules = append(rules, fmt.Sprintf("(%d) %s", i+1, strings.TrimSuffix(ro.Description, ".")))
+		}
+		if len(rules) > 0 {
+			s = append(s, "A model was chosen by applying the plan's decision rules in order: "+strings.Join(rules, "; ")+".")
+		}
+		if or.Chosen != nil {
+			s = append(s, fmt.Sprintf("The model retained was %s.", or.Chosen.ID))
+		} else {
+			s = append(s, "No model met every rule.")
+		}
+		s = append(s, fmt.Sprintf("Each model was compared with the model with thresholds only by a likelihood-ratio test and pseudo-R² measures (McFadden %s, Cox-Snell and Nagelkerke %s, McKelvey-Zavoina for cumulative models with parallel effects %s).", c.cite("mcfadden"), c.cite("nagelkerke"), c.cite("mckelvey")))
+		if or.Lipsitz != nil {
+			s = append(s, fmt.Sprintf("The fit of the chosen model was checked with the Lipsitz test %s and by comparing observed and expected counts in groups of predicted score.", c.cite("lipsitz")))
+		}
+		s = append(s, fmt.Sprintf("Predicted probabilities and marginal effects have delta-method standard errors; the random starts of constrained fits used the seed %d.", p.Seed))
+		d.p("%s", strings.Join(s, " "))
+	}
+	d.p("References:")
+	d.list(c.list())
+}
+
+func covarianceOfPlan(r *runner.Result) string {
+	switch r.Plan.Covariance {
+	case "eim":
+		return "expected information"
+	case "robust", "sandwich":
+		return "sandwich estimator with a small-sample factor"
+	case "robust_hc0", "sandwich_plain":
+		return "sandwich estimator without a small-sample factor"
+	case "cluster", "clustered":
+		return "cluster-robust sandwich estimator"
+	}
+	return "observed information"
+}
+
+func short(h string) string {
+	if len(h) > 12 {
+		return h[:12]
+	}
+	return h
+}
+
+func plural(n int) string {
+	if n > 1 {
+		return "s"
+	}
+	return ""
+}
+
+// joinAnd joins "a", "a and b", "a, b and c".
+func joinAnd(xs []string) string {
+	switch len(xs) {
+	case 0:
+		return ""
+	case 1:
+		return xs[0]
+	}
+	return strings.Join(xs[:len(xs)-1], ", ") + " and " + xs[len(xs)-1]
+}
+
+// writeReproducibility says exactly what produced the report.
+func writeReproducibility(d *doc, r *runner.Result) {
+	d.h(2, "Reproducibility")
+	p := r.Plan
+	cmd := r.Command
+	if cmd == "" {
+		cmd = "(not recorded: the report was not written by the ordplan command)"
+	} else {
+		cmd = "`" + strings.ReplaceAll(cmd, "`", "'") + "`"
+	}
+	rows := [][]string{
+		{"Program", "ordplan " + r.Version},
+		{"Built with", r.GoVersion},
+		{"Operating system / architecture", r.Platform},
+		{"Command line", cmd},
+		{"Plan", fmt.Sprintf("`%s`, SHA-256 `%s`", p.Path, p.Hash)},
+		{"Data", fmt.Sprintf("`%s`, SHA-256 `%s`", p.Data.File, r.DataHash)},
+		{"Seed", fmt.Sprint(p.Seed)},
+	}
+	d.captioned("What produced this report").table([]string{"Item", "Value"}, rows)
+	d.p("The same program, plan, data and seed give the same report byte for byte; run.json lists the SHA-256 hash of every output file.")
+}

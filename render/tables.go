@@ -1,0 +1,256 @@
+package render
+
+import (
+	"bytes"
+	"encoding/csv"
+	"fmt"
+	"math"
+	"strconv"
+
+	"gonum.org/v1/gonum/stat/distuv"
+
+	"ordplan/runner"
+	"ordplan/runner/fit"
+)
+
+// The report's tables as CSV files with full-precision numbers, one set per
+// outcome, for reuse in other software. Each file is listed, with what it
+// holds, in the report and with its hash in run.json.
+
+// csvFile is one table file of an outcome.
+type csvFile struct {
+	name  string // file name
+	about string // what it holds, for the report
+	data  []byte
+}
+
+// csvNum writes a number with up to 12 significant digits; a value that
+// does not exist is an empty cell.
+func csvNum(x float64) string {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return ""
+	}
+	if x == 0 {
+		return "0"
+	}
+	return strconv.FormatFloat(x, 'g', 12, 64)
+}
+
+func csvBytes(head []string, rows [][]string) []byte {
+	var b bytes.Buffer
+	w := csv.NewWriter(&b)
+	w.Write(head)
+	w.WriteAll(rows) // flushes; writing to a buffer does not fail
+	return b.Bytes()
+}
+
+// outcomeFileName is the part of a file name that names an outcome.
+func outcomeFileName(or *runner.OutcomeResult) string {
+	name := []rune(or.Outcome.Column)
+	for i, c := range name {
+		if !(c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' || c == '-' || c == '_') {
+			name[i] = '_'
+		}
+	}
+	return string(name)
+}
+
+// tableFiles returns the CSV tables of one outcome, in a fixed order.
+func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
+	o := outcomeFileName(or)
+	level, z := confidence(r)
+	var out []csvFile
+	add := func(kind, about string, head []string, rows [][]string) {
+		if rows == nil {
+			rows = [][]string{}
+		}
+		out = append(out, csvFile{name: fmt.Sprintf("table-%s-%s.csv", kind, o), about: about, data: csvBytes(head, rows)})
+	}
+
+	// Predictors by outcome category.
+	var rows [][]string
+	for _, s := range describe(or.Data, sourceLevels(or)) {
+		for c := range s.N {
+			cat := "all"
+			if c < len(or.Data.Levels) {
+				cat = or.Data.Levels[c]
+			}
+			row := []string{s.Label, cat, csvNum(s.N[c])}
+			if s.Counts {
+				row = append(row, csvNum(s.Ones[c]), csvNum(s.Mean[c]), "", "")
+			} else {
+				row = append(row, "", "", csvNum(s.Mean[c]), csvNum(s.SD[c]))
+			}
+			rows = append(rows, row)
+		}
+	}
+	add("descriptives", "each predictor (each level of a categorical one) by outcome category", []string{"predictor", "category", "n", "count", "share", "mean", "sd"}, rows)
+
+	// Every candidate fit with its overall fit.
+	rows = nil
+	for _, f := range or.Fits {
+		if f.Auxiliary {
+			continue
+		}
+		row := []string{f.ID, f.Verdict}
+		if f.Result == nil {
+			rows = append(rows, append(row, "not fitted", "", "", "", "", "", "", "", "", "", "", "", "", ""))
+			continue
+		}
+		res := f.Result
+		row = append(row, string(res.Status), csvNum(res.LogLik), strconv.Itoa(res.NParams), csvNum(res.AIC), csvNum(res.BIC), strconv.Itoa(res.NegativeRows))
+		if ov := or.OverallOf(f.ID); ov != nil {
+			lr := []string{"", "", ""}
+			if ov.LR.OK {
+				lr = []string{csvNum(ov.LR.Chi2), strconv.Itoa(ov.LR.DF), csvNum(ov.LR.P)}
+			}
+			row = append(row, csvNum(ov.NullLogLik))
+			row = append(row, lr...)
+			row = append(row, csvNum(ov.McFadden), csvNum(ov.CoxSnell), csvNum(ov.Nagelkerke), csvNum(ov.McKelveyZavoina))
+		} else {
+			row = append(row, "", "", "", "", "", "", "", "")
+		}
+		rows = append(rows, row)
+	}
+	add("models", "every candidate model: status, log-likelihood, criteria, likelihood-ratio test against its thresholds-only model, pseudo-R2",
+		[]string{"model", "verdict", "status", "loglik", "n_params", "aic", "bic", "rows_negative_probability", "null_loglik", "lr_chi2", "lr_df", "lr_p", "mcfadden_r2", "cox_snell_r2", "nagelkerke_r2", "mckelvey_zavoina_r2"}, rows)
+
+	// Estimates of every usable candidate.
+	rows = nil
+	for _, f := range or.Fits {
+		if f.Auxiliary || !f.OK() {
+			continue
+		}
+		res := f.Result
+		for i, n := range res.ParamNames {
+			est, se := res.Estimates[i], res.StdErrors[i]
+			zz := est / se
+			rows = append(rows, []string{f.ID, f.Verdict, ParamLabel(res, n), csvNum(est), csvNum(se), csvNum(zz),
+				csvNum(2 * distuv.UnitNormal.Survival(math.Abs(zz))), csvNum(est - z*se), csvNum(est + z*se)})
+		}
+	}
+	lv := fmt.Sprintf("%g", 100*level)
+	add("estimates", "the estimates of every usable candidate model with standard errors, z, p and "+lv+"% intervals",
+		[]string{"model", "verdict", "parameter", "estimate", "std_error", "z", "p", "low_" + lv, "high_" + lv}, rows)
+
+	// Odds ratios of the chosen model.
+	if or.Chosen != nil && or.Chosen.OK() && or.Chosen.Result.Model.Link == fit.Logit {
+		res := or.Chosen.Result
+		if ors, err := res.OddsRatios(level); err == nil {
+			rows = nil
+			for _, x := range ors {
+				b := ""
+				if x.Boundary > 0 {
+					b = res.Levels[x.Boundary-1] + "/" + res.Levels[x.Boundary]
+				}
+				rows = append(rows, []string{or.Chosen.ID, x.Predictor, strconv.Itoa(x.Boundary), b, x.Kind, csvNum(x.Log), csvNum(x.LogSE), csvNum(x.Ratio), csvNum(x.Low), csvNum(x.High)})
+			}
+			add("odds-ratios", "exp(b) of the chosen model with "+lv+"% intervals (boundary 0: the same at every boundary)",
+				[]string{"model", "predictor", "boundary", "categories", "kind", "log_estimate", "log_se", "ratio", "low_" + lv, "high_" + lv}, rows)
+		}
+	}
+
+	// Tests: parallel lines, nested, overall, goodness of fit, hypotheses.
+	rows = nil
+	testRow := func(family, approach, link, scope string, t fit.Test) {
+		if !t.OK {
+			rows = append(rows, []string{family, approach, link, scope, t.Name, "", "", "", t.Reason})
+			return
+		}
+		rows = append(rows, []string{family, approach, link, scope, t.Name, csvNum(t.Chi2), strconv.Itoa(t.DF), csvNum(t.P), ""})
+	}
+	for _, tb := range or.Tests {
+		for _, t := range tb.Global {
+			testRow("parallel_lines", tb.Approach, tb.Link, "all predictors", t)
+		}
+		for _, vt := range tb.PerVariable {
+			for _, t := range vt.Tests {
+				testRow("parallel_lines", tb.Approach, tb.Link, vt.Predictor, t)
+			}
+		}
+		for _, nt := range tb.Nested {
+			testRow("nested_lr", tb.Approach, tb.Link, nt.Restricted+" within "+nt.Full, nt.Test)
+		}
+	}
+	for _, ov := range or.Overall {
+		testRow("lr_vs_thresholds_only", "", "", ov.Model, ov.LR)
+	}
+	if or.Lipsitz != nil && or.Chosen != nil {
+		testRow("goodness_of_fit", "", "", or.Chosen.ID, or.Lipsitz.Test)
+	}
+	for _, h := range or.Hypotheses {
+		testRow("hypothesis", "", "", h.Model+": "+h.Text, h.Test)
+	}
+	add("tests", "every test of the report: parallel lines, nested likelihood ratios, each model against its thresholds-only model, the Lipsitz test, the plan's hypotheses",
+		[]string{"family", "approach", "link", "scope", "test", "chi2", "df", "p", "note"}, rows)
+
+	// The decision log.
+	rows = nil
+	for i, ro := range or.Rules {
+		for _, v := range ro.Verdicts {
+			rows = append(rows, []string{strconv.Itoa(i + 1), ro.Rule.Kind, strconv.Itoa(ro.Rule.Line), v.Model, strconv.FormatBool(v.Kept), v.Reason})
+		}
+	}
+	add("decision-log", "each decision rule's verdict on each model, rules in plan order", []string{"order", "rule", "plan_line", "model", "kept", "reason"}, rows)
+
+	if or.Chosen == nil || !or.Chosen.OK() {
+		return out
+	}
+	// Marginal effects.
+	if len(or.Marginal) > 0 {
+		rows = nil
+		for _, set := range or.Marginal {
+			for _, me := range set.Effects {
+				rows = append(rows, []string{set.Kind, me.Predictor, me.Category, strconv.FormatBool(me.Discrete), csvNum(me.Effect), csvNum(me.SE), csvNum(me.Z), csvNum(me.P), csvNum(me.Low), csvNum(me.High)})
+			}
+		}
+		add("marginal-effects", "marginal effects of the chosen model with "+lv+"% intervals", []string{"kind", "predictor", "category", "discrete_change", "effect", "std_error", "z", "p", "low_" + lv, "high_" + lv}, rows)
+	}
+	// Predicted probabilities over the focus predictor.
+	if pf, err := newProfile(or.FitData, focusName(r)); err == nil {
+		xs := pf.grid(chartPoints)
+		if pred, err := pf.predict(or.Chosen.Result, xs); err == nil {
+			rows = nil
+			for i, x := range xs {
+				for j := 0; j < pred.J; j++ {
+					p, se := pred.Prob[i*pred.J+j], pred.SE[i*pred.J+j]
+					rows = append(rows, []string{csvNum(x), or.Data.Levels[j], csvNum(p), csvNum(se), csvNum(p - z*se), csvNum(p + z*se)})
+				}
+			}
+			add("predicted", fmt.Sprintf("predicted probabilities of the chosen model over %s (other predictors at their means) with delta-method %s%% intervals", pf.focus, lv),
+				[]string{pf.focus, "category", "probability", "std_error", "low_" + lv, "high_" + lv}, rows)
+		}
+	}
+	// The calibration table.
+	if lz := or.Lipsitz; lz != nil && lz.Table != nil {
+		t := lz.Table
+		rows = nil
+		for g := 0; g < t.Groups; g++ {
+			for j, l := range t.Levels {
+				rows = append(rows, []string{strconv.Itoa(g + 1), csvNum(t.Low[g]), csvNum(t.High[g]), csvNum(t.Weight[g]), l, csvNum(t.Observed[g][j]), csvNum(t.Expected[g][j])})
+			}
+		}
+		add("calibration", "observed and expected counts of each category by group of predicted score", []string{"group", "score_low", "score_high", "n", "category", "observed", "expected"}, rows)
+	}
+	return out
+}
+
+// writeFilesSection lists the files of the run in the report.
+func writeFilesSection(d *doc, r *runner.Result) {
+	d.h(2, "Files of this run")
+	d.p("Beside this report, the run wrote these files (their SHA-256 hashes are in run.json). Tables are CSV with a header line, numbers to 12 significant digits, an empty cell where a value does not exist.")
+	rows := [][]string{
+		{"report.md, report.html", "this report (Markdown with SVG figures; HTML with interactive charts)"},
+		{"decisions.json", "every fit, test and verdict in machine-readable form"},
+		{"run.json", "what produced the outputs: program, plan, data, seed, environment, command line and the hash of every file"},
+	}
+	for _, or := range r.Outcomes {
+		for _, f := range tableFiles(r, or) {
+			rows = append(rows, []string{f.name, f.about})
+		}
+		if or.NewRows != nil && or.NewRows.Pred != nil {
+			rows = append(rows, []string{predictionsFile(or), "predictions of the chosen model for the plan's new rows"})
+		}
+	}
+	d.captioned("Files written by this run").table([]string{"File", "Content"}, rows)
+}
