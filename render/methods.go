@@ -212,5 +212,5 @@ func writeReproducibility(d *doc, r *runner.Result) {
 		{"Seed", fmt.Sprint(p.Seed)},
 	}
 	d.captioned("What produced this report").table([]string{"Item", "Value"}, rows)
-	d.p("The same program, plan, data and seed give the same report byte for byte; run.json lists the SHA-256 hash of every output file.")
+	d.p("The command line leaves out the options that cannot change the results (output directory, number of workers, queue server, progress lines). The same program, plan, data and seed give the same report byte for byte; run.json lists the SHA-256 hash of every output file.")
 }

@@ -137,7 +137,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
-	res.Command = commandLine(append([]string{"ordplan", "run"}, rawArgs...))
+	res.Command = commandLine(append([]string{"ordplan", "run"}, resultArgs(rawArgs)...))
 	res.Registration = reg
 	dec := runner.BuildDecisions(res)
 	var changes []string
@@ -177,6 +177,33 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 func isTerminal(f *os.File) bool {
 	st, err := f.Stat()
 	return err == nil && st.Mode()&os.ModeCharDevice != 0
+}
+
+// resultArgs drops from the arguments of run those that cannot change
+// what a run computes or reports: where the outputs go, how many fits run
+// at once, where the workers are, progress lines. So the same analysis
+// gives the same report and run.json wherever it is written or run.
+func resultArgs(args []string) []string {
+	var out []string
+	for i := 0; i < len(args); i++ {
+		a := args[i]
+		name, _, hasValue := strings.Cut(strings.TrimLeft(a, "-"), "=")
+		if !strings.HasPrefix(a, "-") {
+			out = append(out, a)
+			continue
+		}
+		switch name {
+		case "out", "workers", "queue":
+			if !hasValue {
+				i++ // its value
+			}
+			continue
+		case "quiet":
+			continue
+		}
+		out = append(out, a)
+	}
+	return out
 }
 
 // commandLine writes arguments as a shell would need them typed: an
