@@ -207,14 +207,14 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		add("marginal-effects", "marginal effects of the chosen model with "+lv+"% intervals", []string{"kind", "predictor", "category", "discrete_change", "effect", "std_error", "z", "p", "low_" + lv, "high_" + lv}, rows)
 	}
 	// Predicted probabilities over the focus predictor.
-	if pf, err := newProfile(or.FitData, focusName(r)); err == nil {
+	if pf, err := newProfile(or, focusName(r), nil); err == nil {
 		xs := pf.grid(chartPoints)
 		if pred, err := pf.predict(or.Chosen.Result, xs); err == nil {
 			rows = nil
 			for i, x := range xs {
 				for j := 0; j < pred.J; j++ {
 					p, se := pred.Prob[i*pred.J+j], pred.SE[i*pred.J+j]
-					rows = append(rows, []string{csvNum(x), or.Data.Levels[j], csvNum(p), csvNum(se), csvNum(p - z*se), csvNum(p + z*se)})
+					rows = append(rows, []string{pf.Label(x), or.Data.Levels[j], csvNum(p), csvNum(se), csvNum(p - z*se), csvNum(p + z*se)})
 				}
 			}
 			add("predicted", fmt.Sprintf("predicted probabilities of the chosen model over %s (other predictors at their means) with delta-method %s%% intervals", pf.focus, lv),
