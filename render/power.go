@@ -84,7 +84,7 @@ func writePowerHypotheses(d *doc, op simulate.OutcomePower) {
 		xs[i] = float64(s.N)
 	}
 	l.SetGlobalOptions(append(baseOpts(id, "Power against sample size", op.Outcome+", simulated", 380, opts.Grid{Left: "8%", Right: "6%", Bottom: "18%"}),
-		charts.WithXAxisOpts(opts.XAxis{Name: "n", Type: "value"}),
+		charts.WithXAxisOpts(opts.XAxis{Name: "n", Type: "value", Min: val(xs[0]), Max: val(xs[len(xs)-1])}),
 		charts.WithYAxisOpts(opts.YAxis{Name: "power", Type: "value", Min: 0, Max: 1}))...)
 	for hi, h := range op.Sizes[0].Hypotheses {
 		ys := make([]float64, len(op.Sizes))

@@ -87,6 +87,7 @@ type OutcomePower struct {
 
 // PowerResult is a whole power study.
 type PowerResult struct {
+	Simulated  bool           `json:"simulated_data"` // always true: no real observation is used
 	PlanFile   string         `json:"plan"`
 	PlanSHA256 string         `json:"plan_sha256"`
 	Title      string         `json:"title"`
@@ -130,7 +131,7 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 		return nil, err
 	}
 	defer os.RemoveAll(tmp)
-	res := &PowerResult{PlanFile: filepath.Base(p.Path), PlanSHA256: p.Hash, Title: p.Title, Seed: p.Seed, Link: sim.Link.String(),
+	res := &PowerResult{Simulated: true, PlanFile: filepath.Base(p.Path), PlanSHA256: p.Hash, Title: p.Title, Seed: p.Seed, Link: sim.Link.String(),
 		Replicates: opt.Replicates, Alpha: opt.Alpha, Sizes: opt.Sizes, Version: runner.Version}
 	for _, oc := range p.Outcomes {
 		res.Outcomes = append(res.Outcomes, OutcomePower{Outcome: oc.Column})

@@ -1,0 +1,45 @@
+package main
+
+import (
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// The second example plan (registered before any data exist) checks
+// without data, rehearses and sizes the study; every page made from
+// simulated data says so in its title and first line.
+func TestRegisteredExampleBeforeData(t *testing.T) {
+	planPath := filepath.Join("..", "..", "plans", "kneepain.yaml")
+	if out, errs, code := runCLI("check", planPath, "--no-data"); code != 0 || !strings.Contains(out, "plan is valid (data file not read)") {
+		t.Fatalf("check --no-data: %d %s %s", code, out, errs)
+	}
+	dir := t.TempDir()
+	out, errs, code := runCLI("rehearse", planPath, "--n", "250", "--out", filepath.Join(dir, "r"))
+	if code != 0 || !strings.HasPrefix(out, "SIMULATED DATA: 250 rows") {
+		t.Fatalf("rehearse: %d %s %s", code, out, errs)
+	}
+	md, _ := os.ReadFile(filepath.Join(dir, "r", "report.md"))
+	html, _ := os.ReadFile(filepath.Join(dir, "r", "report.html"))
+	lines := strings.SplitN(string(md), "\n", 4)
+	if !strings.HasPrefix(lines[0], "# SIMULATED DATA: ") || !strings.HasPrefix(lines[2], "**SIMULATED DATA.**") {
+		t.Errorf("report.md opens with\n%s\n%s", lines[0], lines[2])
+	}
+	if !strings.Contains(string(html), "<title>SIMULATED DATA: ") || !strings.Contains(string(html), "<strong>SIMULATED DATA.</strong>") {
+		t.Error("report.html does not say SIMULATED DATA in its title and first line")
+	}
+	if _, err := os.Stat(filepath.Join(dir, "r", "simulated-data.csv")); err != nil {
+		t.Error("the simulated data are not among the outputs")
+	}
+	out, errs, code = runCLI("power", planPath, "--n", "120,240", "--replicates", "3", "--out", filepath.Join(dir, "p"), "--quiet")
+	if code != 0 || !strings.Contains(out, "change n=240: arm = 0: power") {
+		t.Fatalf("power: %d %s %s", code, out, errs)
+	}
+	for _, f := range []string{"power.md", "power.html", "power.json"} {
+		b, err := os.ReadFile(filepath.Join(dir, "p", f))
+		if err != nil || !strings.Contains(string(b), "SIMULATED DATA") && f != "power.json" {
+			t.Errorf("%s: %v", f, err)
+		}
+	}
+}
