@@ -15,6 +15,10 @@ type Inference struct {
 	// tested by a Wald test in every candidate model that has the named
 	// parameters, e.g. "pilot[1] = pilot[2] = pilot[3] = pilot[4]".
 	Hypotheses []Hypothesis
+	// Multiplicity is the correction of the hypotheses' p-values for
+	// testing several (over every outcome, in its chosen model):
+	// MultiplicityNone (default), MultiplicityHolm or MultiplicityBH.
+	Multiplicity string
 	// MarginalEffects lists the kinds of marginal effects reported for the
 	// chosen model: average (over the rows), means (at the means of the
 	// predictors), values (at the values in At). Default [average].
@@ -27,6 +31,13 @@ type Inference struct {
 	Predict     string
 	PredictPath string // resolved against the plan's folder
 }
+
+// Multiplicity corrections.
+const (
+	MultiplicityNone = "none"
+	MultiplicityHolm = "holm"               // family-wise error rate (Holm's step-down)
+	MultiplicityBH   = "benjamini_hochberg" // false discovery rate (step-up)
+)
 
 // Hypothesis is one hypothesis of the plan, with its line.
 type Hypothesis struct {
@@ -42,16 +53,22 @@ type AtValue struct {
 }
 
 var (
-	inferenceKeys       = []string{"hypotheses", "marginal_effects", "at", "predict"}
+	inferenceKeys       = []string{"hypotheses", "multiplicity", "marginal_effects", "at", "predict"}
 	marginalEffectWords = []string{"average", "means", "values"}
+	multiplicityWords   = []string{MultiplicityNone, MultiplicityHolm, MultiplicityBH}
 )
 
 // decodeInference reads the inference section.
 func (d *decoder) decodeInference(n *yaml.Node, inf *Inference, dir string) {
 	inf.MarginalEffects = []string{"average"}
+	inf.Multiplicity = MultiplicityNone
 	m := d.mapping(n, "inference", inferenceKeys)
 	if m == nil {
 		return
+	}
+	m.word("multiplicity", "multiplicity correction", multiplicityWords, &inf.Multiplicity)
+	if inf.Multiplicity != MultiplicityNone && m.get("hypotheses") == nil {
+		d.errAt(m.at("multiplicity"), "corrects the p-values of the plan's hypotheses, and inference.hypotheses is not given")
 	}
 	if v := m.get("hypotheses"); v != nil {
 		items, ok := d.list(v, m.at("hypotheses"))
@@ -124,13 +141,14 @@ func (d *decoder) checkInference(p *Plan) {
 // canonInference is the canonical form of the section.
 type canonInference struct {
 	Hypotheses      []string       `json:"hypotheses"`
+	Multiplicity    string         `json:"multiplicity"`
 	MarginalEffects []string       `json:"marginal_effects"`
 	At              map[string]any `json:"at,omitempty"`
 	Predict         *string        `json:"predict"`
 }
 
 func (inf *Inference) canonical() canonInference {
-	c := canonInference{Hypotheses: []string{}, MarginalEffects: inf.MarginalEffects}
+	c := canonInference{Hypotheses: []string{}, Multiplicity: inf.Multiplicity, MarginalEffects: inf.MarginalEffects}
 	for _, h := range inf.Hypotheses {
 		c.Hypotheses = append(c.Hypotheses, h.Text)
 	}

@@ -18,19 +18,39 @@ func writeHypotheses(d *doc, or *runner.OutcomeResult) {
 	}
 	d.h(3, "Hypotheses of the plan")
 	d.p("Each hypothesis is a set of linear restrictions on parameters, tested by a Wald test in every candidate model that has the parameters it names (with that model's standard errors).")
+	adjusted := ""
+	for _, h := range or.Hypotheses {
+		if h.Adjusted != nil {
+			adjusted = map[string]string{"holm": "Holm", "benjamini_hochberg": "Benjamini-Hochberg"}[h.Adjustment]
+		}
+	}
+	head := []string{"Hypothesis", "Plan line", "Model", "Chi-square", "df", "p"}
+	if adjusted != "" {
+		head = append(head, "p, "+adjusted)
+		d.p("The p-values in the chosen model are also given adjusted for multiplicity (%s) over every hypothesis of every outcome, each in its chosen model; the run notes give the size of the family.", adjusted)
+	}
 	var rows [][]string
 	for _, h := range or.Hypotheses {
 		model := h.Model
 		if model == "" {
 			model = "(none)"
 		}
+		var row []string
 		if !h.Test.OK {
-			rows = append(rows, []string{"`" + h.Text + "`", fmt.Sprint(h.Line), model, "", "", "not computed: " + h.Test.Reason})
-			continue
+			row = []string{"`" + h.Text + "`", fmt.Sprint(h.Line), model, "", "", "not computed: " + h.Test.Reason}
+		} else {
+			row = []string{"`" + h.Text + "`", fmt.Sprint(h.Line), model, numfmt.Stat(h.Test.Chi2), fmt.Sprint(h.Test.DF), numfmt.PValue(h.Test.P)}
 		}
-		rows = append(rows, []string{"`" + h.Text + "`", fmt.Sprint(h.Line), model, numfmt.Stat(h.Test.Chi2), fmt.Sprint(h.Test.DF), numfmt.PValue(h.Test.P)})
+		if adjusted != "" {
+			a := ""
+			if h.Adjusted != nil {
+				a = numfmt.PValue(*h.Adjusted)
+			}
+			row = append(row, a)
+		}
+		rows = append(rows, row)
 	}
-	d.table([]string{"Hypothesis", "Plan line", "Model", "Chi-square", "df", "p"}, rows)
+	d.table(head, rows)
 }
 
 // writeNewRows summarizes the predictions for the plan's new rows.

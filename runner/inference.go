@@ -16,6 +16,10 @@ type HypothesisResult struct {
 	Line  int      `json:"line"`
 	Model string   `json:"model"`
 	Test  fit.Test `json:"test"`
+	// Adjusted is the p-value corrected for multiplicity (the plan's
+	// inference.multiplicity), set for tests in the chosen model only.
+	Adjusted   *float64 `json:"adjusted_p,omitempty"`
+	Adjustment string   `json:"adjustment,omitempty"`
 }
 
 // MarginalSet is one kind of marginal effects of the chosen model.

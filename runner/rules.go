@@ -92,17 +92,16 @@ func (env *ruleEnv) apply() {
 }
 
 // DescribeRules lists the plan's rules in plain words, as they will be
-// applied, with the comparisons each test rule makes.
+// applied, with the comparisons each test rule makes (one per line).
 func DescribeRules(p *plan.Plan) []string {
 	var out []string
 	for i, r := range p.Rules {
 		s := fmt.Sprintf("%d. (line %d) %s", i+1, r.Line, DescribeRule(p, r))
 		if r.Kind == plan.RuleRejectIfTestRejects {
-			var pairs []string
+			s += " Comparisons:"
 			for _, tp := range p.TestPairs(r) {
-				pairs = append(pairs, tp.String())
+				s += "\n     " + tp.String()
 			}
-			s += " Comparisons: " + strings.Join(pairs, "; ") + "."
 		}
 		out = append(out, s)
 	}

@@ -55,6 +55,7 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 		}
 		res.Outcomes = append(res.Outcomes, or)
 	}
+	adjustHypotheses(p, res)
 	return res, nil
 }
 

@@ -322,20 +322,58 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`labels.csv:3: column "y": value "medium" is not one of the declared levels: "low", "high"`}},
 
 		// Data sets that cannot be fitted as asked.
+		{id: "P20", name: "test not defined for a comparison", args: []string{"check"},
+			plan: edit("reject_unconverged: true", "reject_if_test_rejects: {test: brant}"), code: 1,
+			want: []string{`P20.yaml:12:36: rules[0].reject_if_test_rejects.test: the Brant test is not defined for 1 of the 2 comparisons this rule makes (least_constrained): stage/parallel/logit against stage/nonparallel/logit; the Brant test compares the cumulative logit parallel model with the nonparallel one, and nothing else`}},
+		{id: "P21", name: "Wald test rule with constrained models", args: []string{"check"},
+			plan: edit("[cumulative, stage]", "[cumulative]", "[parallel, nonparallel]", "[parallel, constrained]\n  partial: {free: [a]}", "reject_unconverged: true", "reject_if_test_rejects: {test: wald}"), code: 1,
+			want: []string{`the Wald test is not defined for 1 of the 1 comparisons this rule makes (least_constrained): cumulative/parallel/logit against cumulative/constrained/logit`}},
+		{id: "P22", name: "sampling weights with AIC", args: []string{"check"},
+			plan: edit("file: d.csv", "file: w.csv\n  weights: w0\n  weight_kind: probability"), code: 1,
+			want: []string{`rules[1].choose.by: by: aic assumes a likelihood, but with sampling weights (data.weight_kind: probability) the fits maximize a pseudo-likelihood; use by: tic`}},
+		{id: "P23", name: "sampling weights with an LR test rule", args: []string{"check"},
+			plan: edit("file: d.csv", "file: w.csv\n  weights: w0\n  weight_kind: probability", "reject_unconverged: true", "reject_if_test_rejects: {test: lr}", "{by: aic}", "{by: tic}"), code: 1,
+			want: []string{`rules[0].reject_if_test_rejects.test: the likelihood-ratio test is not defined for 2 of the 2 comparisons this rule makes (least_constrained)`, `(use test: wald)`}},
+		{id: "P24", name: "fallback not in the plan", args: []string{"check"},
+			plan: edit("{by: aic}", "{by: aic, otherwise: cumulative/stereotype/probit}"), code: 1,
+			want: []string{`rules[1].choose.otherwise: the fallback cumulative/stereotype/probit is not a model of the plan: effects "stereotype" are not in models.levels; link "probit" is not in models.links`}},
+		{id: "P25", name: "rule without its required option", args: []string{"check"},
+			plan: edit("reject_unconverged: true", "reject_if_simpler_is_close: {grid: {a: [0, 1]}}"), code: 1,
+			want: []string{`rules[0].reject_if_simpler_is_close.max_difference: required key is missing`}},
+		{id: "P26", name: "sparse rule within a column absent from the data", args: []string{"check"},
+			plan: edit("reject_unconverged: true", "reject_if_sparse: {smallest_category: 5, within: region}"), code: 1,
+			want: []string{`rules[0].reject_if_sparse.within: column "region" is not in the data file d.csv`}},
+		{id: "P27", name: "multiplicity without hypotheses", args: []string{"check"},
+			plan: goodPlan + "inference: {multiplicity: holm}\n", code: 1,
+			want: []string{`inference.multiplicity: corrects the p-values of the plan's hypotheses, and inference.hypotheses is not given`}},
+		{id: "P28", name: "every candidate rejected", args: []string{"run"},
+			plan: edit("reject_unconverged: true", "reject_if_sparse: {per_parameter: 1000}"), code: exitNoChoice,
+			want: []string{"ordplan: outcome y: no model chosen: every candidate was rejected, and the plan says to stop (otherwise: stop)"},
+			check: func(t *testing.T, dir, out, errs string) {
+				if !strings.Contains(out, "y: no model chosen") {
+					t.Errorf("stdout: %s", out)
+				}
+				// With a fallback, that model is reported and marked.
+				p := filepath.Join(dir, "P28b.yaml")
+				os.WriteFile(p, []byte(edit("reject_unconverged: true", "reject_if_sparse: {per_parameter: 1000}", "{by: aic}", "{by: aic, otherwise: stage/parallel/logit}")), 0o644)
+				outDir := filepath.Join(dir, "P28out")
+				o, e, code := runCLI("run", p, "--out", outDir, "--quiet")
+				if code != 0 || !strings.Contains(o, "y: fallback: stage/parallel/logit (every candidate was rejected)") {
+					t.Fatalf("fallback run: exit %d\n%s\n%s", code, o, e)
+				}
+				rep, _ := os.ReadFile(filepath.Join(outDir, "report.md"))
+				dec, _ := os.ReadFile(filepath.Join(outDir, "decisions.json"))
+				if !strings.Contains(string(rep), "**Result (the plan's fallback, not a choice by the rules):** stage/parallel/logit: fallback: every candidate was rejected") ||
+					!strings.Contains(string(dec), `"fallback": true`) {
+					t.Errorf("the fallback is not marked in the report or decisions.json")
+				}
+			}},
 		{id: "M1", name: "constant predictor", args: fitArgs(d("d.csv"), "--predictors", "a,c"), code: 1,
 			want: []string{`predictor "c" is constant (every row has 5): it cannot be estimated alongside the cutpoints; remove it`}},
 		{id: "M2", name: "perfectly collinear predictors", args: fitArgs(d("d.csv"), "--predictors", "a,b,d"), code: 1,
 			want: []string{`predictor "d" is perfectly collinear with "a", "b" (and the constant): remove one of them`}},
 		{id: "M3", name: "constant predictor in a plan run", args: []string{"run"}, plan: edit("[a, b]", "[a, c]"), code: 1,
-			want: []string{`"c" is constant`},
-			known: func(out, errs string, code int) string {
-				if code == 0 && strings.Contains(out, "no model chosen") {
-					return "`ordplan run` exits 0 with \"y: no model chosen\" when every model of the grid is refused for the same " +
-						"input error; only report.md says why (runner/run.go runs the grid without checking the predictors " +
-						"once; cmd/ordplan/plan.go treats \"no model chosen\" as success)"
-				}
-				return ""
-			}},
+			want: []string{`"c" is constant`}},
 		{id: "M4", name: "complete separation", args: fitArgs(d("sep.csv"), "--predictors", "x,z"), code: 1,
 			want: []string{"no finite maximum likelihood estimate", "predictors involved: x", "category boundaries: "}, known: separationMissed},
 		{id: "M5", name: "quasi-complete separation", args: fitArgs(d("quasi1.csv"), "--predictors", "g,z", "--nonparallel", "g"), code: 1,
@@ -456,7 +494,9 @@ func TestBadInputCatalogue(t *testing.T) {
 			where := out
 			if it.code != 0 {
 				where = errs
-				if out != "" && !strings.HasPrefix(it.args[0], "fit") {
+				// A run that chose nothing (exit 3) has written its outputs
+				// and says where on stdout.
+				if out != "" && !strings.HasPrefix(it.args[0], "fit") && it.code != exitNoChoice {
 					t.Errorf("stdout on failure: %s", out)
 				}
 				if where == "" {

@@ -90,3 +90,24 @@ func TestRunAndCheckBadInput(t *testing.T) {
 		})
 	}
 }
+
+// `ordplan check` lists the rules as they will be applied, in plain words,
+// with the comparisons each test rule makes.
+func TestCheckListsRules(t *testing.T) {
+	stdout, stderr, code := runCLI("check", filepath.Join("..", "..", "plans", "example.yaml"))
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	for _, w := range []string{
+		"The rules, in the order they will be applied to the models of each outcome:",
+		"1. (line 58) Reject fits that did not converge or whose likelihood has no finite maximum.",
+		"Reject a model when the likelihood-ratio test against the least constrained model of its approach and link rejects it at alpha = 0.05.",
+		"Comparisons:\n     cumulative/parallel/logit against cumulative/nonparallel/logit\n",
+		"     adjacent/stereotype/logit against adjacent/nonparallel/logit\n",
+		"If every candidate has been rejected, choose nothing and stop with an error.",
+	} {
+		if !strings.Contains(stdout, w) {
+			t.Errorf("check output lacks %q:\n%s", w, stdout)
+		}
+	}
+}

@@ -1,0 +1,100 @@
+package runner
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"ordplan/plan"
+)
+
+// HolmAdjust returns Holm's step-down adjusted p-values, in the order
+// given: with p sorted ascending p_(1) <= ... <= p_(m), the adjusted
+// p_(i) is max over j <= i of min(1, (m - j + 1) p_(j)). Rejecting where
+// the adjusted value is below alpha controls the family-wise error rate.
+func HolmAdjust(p []float64) []float64 {
+	m := len(p)
+	idx := sortedIndex(p)
+	out := make([]float64, m)
+	run := 0.0
+	for r, i := range idx {
+		run = math.Max(run, math.Min(1, float64(m-r)*p[i]))
+		out[i] = run
+	}
+	return out
+}
+
+// BHAdjust returns Benjamini and Hochberg's step-up adjusted p-values, in
+// the order given: the adjusted p_(i) is min over j >= i of
+// min(1, m p_(j) / j). Rejecting where the adjusted value is below q
+// controls the false discovery rate at q (independent or positively
+// dependent tests).
+func BHAdjust(p []float64) []float64 {
+	m := len(p)
+	idx := sortedIndex(p)
+	out := make([]float64, m)
+	run := 1.0
+	for r := m - 1; r >= 0; r-- {
+		i := idx[r]
+		run = math.Min(run, math.Min(1, float64(m)*p[i]/float64(r+1)))
+		out[i] = run
+	}
+	return out
+}
+
+// sortedIndex orders the indices by p, ties in the order given.
+func sortedIndex(p []float64) []int {
+	idx := make([]int, len(p))
+	for i := range idx {
+		idx[i] = i
+	}
+	sort.SliceStable(idx, func(a, b int) bool { return p[idx[a]] < p[idx[b]] })
+	return idx
+}
+
+// adjustHypotheses corrects the p-values of the plan's hypotheses for
+// multiplicity. The family is every hypothesis of every outcome, tested
+// in that outcome's chosen model; tests in the other candidates are
+// descriptive and keep their raw p-values only.
+func adjustHypotheses(p *plan.Plan, res *Result) {
+	method := p.Inference.Multiplicity
+	if method == "" || method == plan.MultiplicityNone || len(p.Inference.Hypotheses) == 0 {
+		return
+	}
+	type ref struct{ or, h int }
+	var refs []ref
+	var ps []float64
+	left := 0
+	for o, or := range res.Outcomes {
+		for h := range or.Hypotheses {
+			hr := &or.Hypotheses[h]
+			if or.Chosen == nil || hr.Model != or.Chosen.ID {
+				continue
+			}
+			if !hr.Test.OK {
+				left++
+				continue
+			}
+			refs = append(refs, ref{o, h})
+			ps = append(ps, hr.Test.P)
+		}
+	}
+	var adj []float64
+	name := "Holm's step-down correction (family-wise error rate)"
+	if method == plan.MultiplicityBH {
+		adj, name = BHAdjust(ps), "the Benjamini-Hochberg step-up correction (false discovery rate)"
+	} else {
+		adj = HolmAdjust(ps)
+	}
+	for k, r := range refs {
+		v := adj[k]
+		hr := &res.Outcomes[r.or].Hypotheses[r.h]
+		hr.Adjusted = &v
+		hr.Adjustment = method
+	}
+	note := fmt.Sprintf("Multiplicity: the p-values of the plan's hypotheses in the chosen models are adjusted by %s over a family of %d tests (every hypothesis of every outcome with a chosen model)", name, len(ps))
+	if left > 0 {
+		note += fmt.Sprintf("; %d hypothesis test(s) in a chosen model could not be computed and are not in the family", left)
+	}
+	res.Notes = append(res.Notes, note+".")
+}
