@@ -72,7 +72,7 @@ func TestExamplePlan(t *testing.T) {
 		},
 	})
 	check("Tests", p.Tests, Tests{ParallelLines: []string{"brant", "lr", "score", "wald", "wolfe_gould"}, Alpha: 0.05})
-	wantKinds := []string{RuleRejectUnconverged, RuleRejectNegativeProbabilities, RuleRejectIfTestRejects, RulePreferSimpler}
+	wantKinds := []string{RuleRejectUnconverged, RuleRejectNegativeProbabilities, RuleRejectIfSparse, RuleRejectIfTestRejects, RulePreferSimpler}
 	if len(p.Rules) != len(wantKinds) {
 		t.Fatalf("got %d rules, want %d", len(p.Rules), len(wantKinds))
 	}
@@ -82,8 +82,9 @@ func TestExamplePlan(t *testing.T) {
 			t.Errorf("rule %d has no line", i)
 		}
 	}
-	check("rule 2", p.Rules[2], Rule{Line: p.Rules[2].Line, Kind: RuleRejectIfTestRejects, Test: "lr", Alpha: 0.05, Against: AgainstLeast})
-	check("rule 3", p.Rules[3], Rule{Line: p.Rules[3].Line, Kind: RulePreferSimpler, By: "bic", Margin: 2, Otherwise: OtherwiseStop})
+	check("rule 2", p.Rules[2], Rule{Line: p.Rules[2].Line, Kind: RuleRejectIfSparse, PerParameter: 10, SmallestCategory: 5, Within: "pilot"})
+	check("rule 3", p.Rules[3], Rule{Line: p.Rules[3].Line, Kind: RuleRejectIfTestRejects, Test: "lr", Alpha: 0.05, Against: AgainstLeast})
+	check("rule 4", p.Rules[4], Rule{Line: p.Rules[4].Line, Kind: RulePreferSimpler, By: "bic", Margin: 2, Otherwise: OtherwiseStop})
 	check("Covariance", p.Covariance, "oim")
 	check("Report", p.Report, Report{
 		Title:           "Cycling safety after the quiet-streets pilot",
