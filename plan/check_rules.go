@@ -120,8 +120,12 @@ func (d *decoder) checkTestRule(p *Plan, r Rule, at string) {
 		key = at + ".test"
 	}
 	hint := ""
-	if !p.Data.Sampling() {
-		hint = "; use test: lr, or limit the rule with applies_to or against"
+	switch {
+	case p.Data.Sampling():
+	case r.Test == "brant":
+		hint = "; use test: lr, or keep the Brant rule to a plan of cumulative logit models with applies_to: [parallel]"
+	default:
+		hint = "; use test: lr, or leave constrained and stereotype models out of the rule with applies_to"
 	}
 	d.errAt(key, "the %s test is not defined for %d of the %d comparisons this rule makes (%s): %s; %s%s",
 		TestName(r.Test), len(bad), len(pairs), r.Against, strings.Join(bad, ", "), why, hint)
