@@ -25,6 +25,14 @@ func Changes(prevDir string, cur *Decisions) ([]string, error) {
 	if prev.Data.SHA256 != cur.Data.SHA256 {
 		out = append(out, fmt.Sprintf("The data file changed (sha256 %.12s... -> %.12s...).", prev.Data.SHA256, cur.Data.SHA256))
 	}
+	switch pn, cn := prev.NewRows, cur.NewRows; {
+	case pn == nil && cn != nil:
+		out = append(out, fmt.Sprintf("Predictions for new rows (%s) are new.", cn.File))
+	case pn != nil && cn == nil:
+		out = append(out, "There are no predictions for new rows any more.")
+	case pn != nil && pn.SHA256 != cn.SHA256:
+		out = append(out, fmt.Sprintf("The new-rows file changed (sha256 %.12s... -> %.12s...): the predictions are for other rows.", pn.SHA256, cn.SHA256))
+	}
 	prevOut := map[string]OutcomeDecisions{}
 	for _, o := range prev.Outcomes {
 		prevOut[o.Outcome] = o

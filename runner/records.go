@@ -22,6 +22,8 @@ type Decisions struct {
 	Version string  `json:"version"`
 	Plan    PlanRef `json:"plan"`
 	Data    DataRef `json:"data"`
+	// NewRows is the new-rows file of the plan's predictions (absent when none).
+	NewRows *DataRef `json:"new_rows,omitempty"`
 	// Registration is the plan compared with its lock (absent when not compared).
 	Registration *RegistrationRecord `json:"registration,omitempty"`
 	// Simulated is set when the data were simulated from the plan's assumptions.
@@ -117,9 +119,10 @@ type RuleJSON struct {
 func BuildDecisions(r *Result) *Decisions {
 	p := r.Plan
 	d := &Decisions{Program: "ordplan", Version: r.Version,
-		Plan:  PlanRef{File: filepath.Base(p.Path), Title: p.Title, SHA256: p.Hash},
-		Data:  DataRef{File: p.Data.File, SHA256: r.DataHash},
-		Notes: nonNil(r.Notes), Registration: registrationRecord(r.Registration), Simulated: r.Simulated}
+		Plan:    PlanRef{File: filepath.Base(p.Path), Title: p.Title, SHA256: p.Hash},
+		Data:    DataRef{File: p.Data.File, SHA256: r.DataHash},
+		NewRows: newRowsRef(r),
+		Notes:   nonNil(r.Notes), Registration: registrationRecord(r.Registration), Simulated: r.Simulated}
 	for _, or := range r.Outcomes {
 		od := OutcomeDecisions{Outcome: or.Outcome.Column, Categories: or.Data.Levels, Counts: or.Data.Counts,
 			RowsRead: or.Data.RowsRead, RowsUsed: or.Data.N, Dropped: nonNilDrops(or.Data.Dropped), NObs: or.Data.NObs(),
@@ -200,11 +203,12 @@ func MarshalStable(v any) ([]byte, error) {
 
 // RunRecord is the content of run.json: what produced the outputs.
 type RunRecord struct {
-	Program string  `json:"program"`
-	Version string  `json:"version"`
-	Plan    PlanRef `json:"plan"`
-	Data    DataRef `json:"data"`
-	Seed    uint64  `json:"seed"`
+	Program string   `json:"program"`
+	Version string   `json:"version"`
+	Plan    PlanRef  `json:"plan"`
+	Data    DataRef  `json:"data"`
+	NewRows *DataRef `json:"new_rows,omitempty"`
+	Seed    uint64   `json:"seed"`
 	// Registration is the plan compared with its lock (absent when not compared).
 	Registration *RegistrationRecord `json:"registration,omitempty"`
 	Outputs      map[string]string   `json:"outputs_sha256"`
@@ -224,7 +228,7 @@ func WriteFiles(r *Result, dir string, files map[string][]byte) error {
 	}
 	rec := RunRecord{Program: "ordplan", Version: r.Version,
 		Plan: PlanRef{File: filepath.Base(r.Plan.Path), Title: r.Plan.Title, SHA256: r.Plan.Hash},
-		Data: DataRef{File: r.Plan.Data.File, SHA256: r.DataHash}, Seed: r.Plan.Seed, Outputs: map[string]string{}}
+		Data: DataRef{File: r.Plan.Data.File, SHA256: r.DataHash}, NewRows: newRowsRef(r), Seed: r.Plan.Seed, Outputs: map[string]string{}}
 	rec.Timestamp = r.Started
 	rec.GoVersion, rec.Platform, rec.Command = r.GoVersion, r.Platform, r.Command
 	rec.Registration = registrationRecord(r.Registration)
@@ -255,4 +259,12 @@ func WriteFiles(r *Result, dir string, files map[string][]byte) error {
 	}
 	all["run.json"] = b
 	return writeAll(dir, append(names, "run.json"), all)
+}
+
+// newRowsRef names the new-rows file of a run, or nil.
+func newRowsRef(r *Result) *DataRef {
+	if r.NewRowsHash == "" {
+		return nil
+	}
+	return &DataRef{File: r.Plan.Inference.Predict, SHA256: r.NewRowsHash}
 }

@@ -1,11 +1,8 @@
 package runner
 
 import (
-	"crypto/sha256"
-	"encoding/hex"
 	"fmt"
 	"io"
-	"os"
 	"runtime"
 	"slices"
 	"sync"
@@ -31,16 +28,26 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 	if err := supported(p); err != nil {
 		return nil, err
 	}
-	raw, err := os.ReadFile(p.Data.Path)
+	// The data file (and the new-rows file) are read once: every reader
+	// during the run parses the bytes whose hash the run records.
+	dataHash, unpin, err := data.Pin(p.Data.Path)
 	if err != nil {
 		return nil, fmt.Errorf("%s: data.file: %v", p.Path, err)
+	}
+	defer unpin()
+	res := &Result{Plan: p, DataHash: dataHash, Version: Version,
+		GoVersion: runtime.Version(), Platform: runtime.GOOS + "/" + runtime.GOARCH}
+	if p.Inference.PredictPath != "" {
+		h, unpinNew, err := data.Pin(p.Inference.PredictPath)
+		if err != nil {
+			return nil, fmt.Errorf("%s: inference.predict: %v", p.Path, err)
+		}
+		defer unpinNew()
+		res.NewRowsHash = h
 	}
 	if err := ValidateData(p); err != nil {
 		return nil, err
 	}
-	sum := sha256.Sum256(raw)
-	res := &Result{Plan: p, DataHash: hex.EncodeToString(sum[:]), Version: Version,
-		GoVersion: runtime.Version(), Platform: runtime.GOOS + "/" + runtime.GOARCH}
 	if p.Report.Timestamp {
 		res.Started = time.Now().UTC().Format(time.RFC3339)
 	}

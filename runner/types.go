@@ -11,11 +11,14 @@ import (
 // Result is everything a plan run produced, in plan order.
 type Result struct {
 	Plan     *plan.Plan
-	DataHash string // hex SHA-256 of the data file
-	Version  string
-	Outcomes []*OutcomeResult
-	Notes    []string // run-level remarks (covariance, weights)
-	Started  string   // UTC start time, only when the plan asks for timestamps
+	DataHash string // hex SHA-256 of the data file (of the bytes the run parsed)
+	// NewRowsHash is the hex SHA-256 of the plan's new-rows file
+	// (inference.predict), "" when there is none.
+	NewRowsHash string
+	Version     string
+	Outcomes    []*OutcomeResult
+	Notes       []string // run-level remarks (covariance, weights)
+	Started     string   // UTC start time, only when the plan asks for timestamps
 
 	GoVersion string // the Go release the program was built with
 	Platform  string // operating system/architecture

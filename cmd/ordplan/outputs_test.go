@@ -107,3 +107,27 @@ func TestOutputsSafe(t *testing.T) {
 		t.Errorf("after the lock is released: exit %d: %s", code, e)
 	}
 }
+
+// The new-rows file is hashed into run.json and decisions.json, and a
+// rerun with --previous says when it changed.
+func TestNewRowsHashCompared(t *testing.T) {
+	dir := t.TempDir()
+	p := twoOutcomePlan(t, dir)
+	first, second := filepath.Join(dir, "first"), filepath.Join(dir, "second")
+	if _, e, code := runCLI("run", p, "--out", first, "--quiet"); code != 0 {
+		t.Fatal(e)
+	}
+	run, _ := os.ReadFile(filepath.Join(first, "run.json"))
+	if !strings.Contains(string(run), `"new_rows": {`) {
+		t.Errorf("run.json does not name the new-rows file:\n%s", run)
+	}
+	out, e, code := runCLI("run", p, "--out", second, "--previous", first, "--quiet")
+	if code != 0 || strings.Contains(out, "new-rows file changed") {
+		t.Fatalf("unchanged: exit %d %s %s", code, out, e)
+	}
+	os.WriteFile(filepath.Join(dir, "new.csv"), []byte("a,b\n0.5,0\n-1,0\n"), 0o644)
+	out, e, code = runCLI("run", p, "--out", second, "--previous", first, "--quiet")
+	if code != 0 || !strings.Contains(out, "change: The new-rows file changed (sha256 ") {
+		t.Errorf("changed new rows: exit %d %s %s", code, out, e)
+	}
+}

@@ -258,7 +258,7 @@ func TestLoad(t *testing.T) {
 		name, path, want string
 	}{
 		{"missing file", filepath.Join(dir, "nope.csv"), "cannot open file: no such file or directory"},
-		{"directory", dir, "cannot read file: "},
+		{"directory", dir, "is a folder, not a regular file"},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {

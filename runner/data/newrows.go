@@ -5,7 +5,6 @@ import (
 	"encoding/csv"
 	"errors"
 	"io"
-	"os"
 	"strings"
 )
 
@@ -19,7 +18,8 @@ type Rows struct {
 	N          int
 	Lines      []int // line of each kept row
 	RowsRead   int
-	Skipped    []int // lines skipped for a missing value
+	Skipped    []int  // lines skipped for a missing value
+	SHA256     string // hex SHA-256 of the file's bytes
 }
 
 // LoadRows reads a CSV file of rows to predict: a header naming at least
@@ -34,10 +34,11 @@ func LoadRows(path string, predictors []string, offset string, missingTokens []s
 // column in levels must be one of its levels and are stored as the level's
 // index; a level not listed is an error naming the line and column.
 func LoadRowsLevels(path string, predictors []string, levels map[string][]string, offset string, missingTokens []string) (*Rows, error) {
-	raw, err := os.ReadFile(path)
+	raw, err := ReadFile(path)
 	if err != nil {
-		return nil, &Error{File: path, Msg: "cannot open file: " + osReason(err), Err: err}
+		return nil, err
 	}
+	hash := HashBytes(raw)
 	raw = bytes.TrimPrefix(raw, utf8BOM)
 	opt := Options{MissingTokens: missingTokens}
 	missing := opt.missingSet()
@@ -66,7 +67,7 @@ func LoadRowsLevels(path string, predictors []string, levels map[string][]string
 		pos[j] = i
 	}
 	K := len(predictors)
-	rs := &Rows{File: path, Predictors: predictors}
+	rs := &Rows{File: path, Predictors: predictors, SHA256: hash}
 	for {
 		rec, err := cr.Read()
 		if err == io.EOF {

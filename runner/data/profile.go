@@ -3,7 +3,6 @@ package data
 import (
 	"io"
 	"math"
-	"os"
 	"slices"
 	"strconv"
 	"strings"
@@ -30,14 +29,16 @@ const MaxValues = 30
 // ProfileFile reads a CSV file and profiles every column. Values are
 // listed in order of first appearance, or numerically for numbers.
 func ProfileFile(path string, missingTokens []string) ([]Profile, error) {
-	f, err := os.Open(path)
+	f, err := openData(path)
 	if err != nil {
-		return nil, &Error{File: path, Msg: "cannot open file: " + osReason(err), Err: err}
+		return nil, err
 	}
 	defer f.Close()
 	r := &reader{file: path, opt: Options{MissingTokens: missingTokens}}
 	r.missing = r.opt.missingSet()
-	r.start(f)
+	if err := r.start(f); err != nil {
+		return nil, err
+	}
 	names, _, err := r.names()
 	if err != nil {
 		return nil, err

@@ -8,7 +8,6 @@ import (
 	"fmt"
 	"io"
 	"io/fs"
-	"os"
 	"strings"
 )
 
@@ -16,9 +15,9 @@ var utf8BOM = []byte{0xEF, 0xBB, 0xBF}
 
 // Load reads the CSV file at path. See Read.
 func Load(path string, opt Options) (*Dataset, error) {
-	f, err := os.Open(path)
+	f, err := openData(path)
 	if err != nil {
-		return nil, &Error{File: path, Msg: "cannot open file: " + osReason(err), Err: err}
+		return nil, err
 	}
 	defer f.Close()
 	return Read(f, path, opt)
@@ -82,7 +81,9 @@ func (r *reader) read(in io.Reader) (*Dataset, error) {
 	if err != nil {
 		return nil, &Error{File: r.file, Msg: err.Error()}
 	}
-	r.start(in)
+	if err := r.start(in); err != nil {
+		return nil, err
+	}
 	if err := r.header(cols); err != nil {
 		return nil, err
 	}
@@ -139,9 +140,9 @@ func (r *reader) names() ([]string, map[string]int, error) {
 // the column names as Load sees them (spaces around names removed). It
 // fails, with an *Error, where Load would fail on the header.
 func Header(path string) ([]string, error) {
-	f, err := os.Open(path)
+	f, err := openData(path)
 	if err != nil {
-		return nil, &Error{File: path, Msg: "cannot open file: " + osReason(err), Err: err}
+		return nil, err
 	}
 	defer f.Close()
 	return ReadHeader(f, path)
@@ -153,18 +154,26 @@ func ReadHeader(in io.Reader, name string) ([]string, error) {
 		name = "<input>"
 	}
 	r := &reader{file: name}
-	r.start(in)
+	if err := r.start(in); err != nil {
+		return nil, err
+	}
 	names, _, err := r.names()
 	return names, err
 }
 
-// start sets up the CSV reader, skipping a UTF-8 byte order mark.
-func (r *reader) start(in io.Reader) {
-	br := bufio.NewReader(in)
+// start sets up the CSV reader, skipping a UTF-8 byte order mark. A
+// compressed, UTF-16, binary or CR-only file is refused, named as such.
+func (r *reader) start(in io.Reader) error {
+	br := bufio.NewReaderSize(in, 64<<10)
+	head, _ := br.Peek(4096)
+	if msg := sniff(head); msg != "" {
+		return &Error{File: r.file, Msg: msg}
+	}
 	if b, err := br.Peek(len(utf8BOM)); err == nil && bytes.Equal(b, utf8BOM) {
 		br.Discard(len(utf8BOM))
 	}
 	r.cr = csv.NewReader(br)
 	r.cr.FieldsPerRecord = 0 // the header sets the width
 	r.cr.TrimLeadingSpace = true
+	return nil
 }

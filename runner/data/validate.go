@@ -3,7 +3,6 @@ package data
 import (
 	"fmt"
 	"io"
-	"os"
 	"strconv"
 	"strings"
 )
@@ -45,9 +44,9 @@ func (e *ValidationError) Error() string {
 // the column's own codes) are not checked. Columns absent from the header
 // are left to the plan's column check.
 func Validate(path string, rules []Rule, missingTokens []string) error {
-	f, err := os.Open(path)
+	f, err := openData(path)
 	if err != nil {
-		return &Error{File: path, Msg: "cannot open file: " + osReason(err), Err: err}
+		return err
 	}
 	defer f.Close()
 	r := &reader{file: path, opt: Options{MissingTokens: missingTokens, ColumnMissing: map[string][]string{}}}
@@ -55,7 +54,9 @@ func Validate(path string, rules []Rule, missingTokens []string) error {
 	for _, ru := range rules {
 		r.opt.ColumnMissing[ru.Column] = ru.Missing
 	}
-	r.start(f)
+	if err := r.start(f); err != nil {
+		return err
+	}
 	_, where, err := r.names()
 	if err != nil {
 		return err

@@ -13,11 +13,13 @@ import (
 	"time"
 
 	"github.com/nats-io/nats.go/jetstream"
+
+	"ordplan/runner/data"
 )
 
 // HashFile returns the hex SHA-256 of the file's bytes.
 func HashFile(path string) (string, error) {
-	b, err := os.ReadFile(path)
+	b, err := data.ReadFile(path)
 	if err != nil {
 		return "", err
 	}
@@ -33,7 +35,7 @@ func hashBytes(b []byte) string {
 // uploads the bytes unless an object with that name and the right digest is
 // already there. The file must hash to hash.
 func (c *Client) PutData(ctx context.Context, path, hash string) error {
-	b, err := os.ReadFile(path)
+	b, err := data.ReadFile(path) // the bytes a running plan pinned, if it did
 	if err != nil {
 		return fmt.Errorf("data file: %v", err)
 	}

@@ -1,0 +1,189 @@
+package data
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
+	"io"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"sync"
+)
+
+// Data files are read whole, from regular files only: a named pipe or a
+// device (/dev/zero, a terminal) would hang a reader or never end. While a
+// file is pinned (a plan run pins its data and new-rows files), every
+// reader of that path in the process gets the bytes read when it was
+// pinned, so that the hash a run records is the hash of the bytes it
+// parsed, even if the file is replaced during the run.
+
+var pins = struct {
+	sync.Mutex
+	m map[string]*pinned
+}{m: map[string]*pinned{}}
+
+type pinned struct {
+	raw  []byte
+	refs int
+}
+
+func pinKey(path string) string {
+	if abs, err := filepath.Abs(path); err == nil {
+		return abs
+	}
+	return filepath.Clean(path)
+}
+
+// Pin reads the file at path once and makes every reader of this package
+// use these bytes until the returned function is called. It returns the
+// bytes' hex SHA-256. Pins nest: the bytes of the first pin are kept until
+// the last unpin.
+func Pin(path string) (string, func(), error) {
+	key := pinKey(path)
+	pins.Lock()
+	p, ok := pins.m[key]
+	pins.Unlock()
+	if !ok {
+		raw, err := ReadFile(path)
+		if err != nil {
+			return "", nil, err
+		}
+		pins.Lock()
+		if p, ok = pins.m[key]; !ok {
+			p = &pinned{raw: raw}
+			pins.m[key] = p
+		}
+		pins.Unlock()
+	}
+	pins.Lock()
+	p.refs++
+	pins.Unlock()
+	var once sync.Once
+	unpin := func() {
+		once.Do(func() {
+			pins.Lock()
+			defer pins.Unlock()
+			if p.refs--; p.refs == 0 && pins.m[key] == p {
+				delete(pins.m, key)
+			}
+		})
+	}
+	return HashBytes(p.raw), unpin, nil
+}
+
+// HashBytes returns the hex SHA-256 of b.
+func HashBytes(b []byte) string {
+	s := sha256.Sum256(b)
+	return hex.EncodeToString(s[:])
+}
+
+// ReadFile returns the bytes of a data file: the pinned ones, or the whole
+// file when it is a regular file; anything else is an *Error saying what
+// the path is. The bytes are checked for a recognizable non-CSV format.
+func ReadFile(path string) ([]byte, error) {
+	pins.Lock()
+	p, ok := pins.m[pinKey(path)]
+	pins.Unlock()
+	if ok {
+		return p.raw, nil
+	}
+	if err := CheckRegular(path); err != nil {
+		return nil, err
+	}
+	raw, err := os.ReadFile(path)
+	if err != nil {
+		return nil, &Error{File: path, Msg: "cannot read file: " + osReason(err), Err: err}
+	}
+	if msg := sniff(raw); msg != "" {
+		return nil, &Error{File: path, Msg: msg}
+	}
+	return raw, nil
+}
+
+// openData opens a data file for reading (see ReadFile).
+func openData(path string) (io.ReadCloser, error) {
+	pins.Lock()
+	p, ok := pins.m[pinKey(path)]
+	pins.Unlock()
+	if ok {
+		return io.NopCloser(bytes.NewReader(p.raw)), nil
+	}
+	if err := CheckRegular(path); err != nil {
+		return nil, err
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, &Error{File: path, Msg: "cannot open file: " + osReason(err), Err: err}
+	}
+	return f, nil
+}
+
+// CheckRegular refuses a path that is not a regular file (after
+// symlinks), without opening it: opening a named pipe would wait for a
+// writer.
+func CheckRegular(path string) error {
+	fi, err := os.Stat(path)
+	if err != nil {
+		return &Error{File: path, Msg: "cannot open file: " + osReason(err), Err: err}
+	}
+	m := fi.Mode()
+	var what string
+	switch {
+	case m.IsRegular():
+		return nil
+	case m.IsDir():
+		what = "a folder"
+	case m&fs.ModeNamedPipe != 0:
+		what = "a named pipe (FIFO)"
+	case m&fs.ModeCharDevice != 0 || m&fs.ModeDevice != 0:
+		what = "a device (such as /dev/zero or a terminal)"
+	case m&fs.ModeSocket != 0:
+		what = "a socket"
+	default:
+		what = "not a regular file"
+	}
+	return &Error{File: path, Msg: "is " + what + ", not a regular file: ordplan reads data from files only (save the data to a file first)"}
+}
+
+// sniff names formats that are not CSV text, from the first bytes:
+// compressed files, archives, UTF-16 text (with a byte order mark, or
+// with every other byte NUL), other binary data, and text whose lines end
+// in a carriage return alone. It returns "" for anything else.
+func sniff(b []byte) string {
+	head := b[:min(len(b), 4096)]
+	switch {
+	case bytes.HasPrefix(head, []byte{0x1f, 0x8b}):
+		return "is gzip-compressed, not CSV text: decompress it first (gunzip)"
+	case bytes.HasPrefix(head, []byte("PK\x03\x04")):
+		return "is a ZIP archive (a spreadsheet workbook?), not CSV text: export or extract the CSV file first"
+	case bytes.HasPrefix(head, []byte("BZh")) && len(head) > 3 && head[3] >= '1' && head[3] <= '9':
+		return "is bzip2-compressed, not CSV text: decompress it first (bunzip2)"
+	case bytes.HasPrefix(head, []byte{0xfd, '7', 'z', 'X', 'Z', 0}):
+		return "is xz-compressed, not CSV text: decompress it first (unxz)"
+	case bytes.HasPrefix(head, []byte{0x28, 0xb5, 0x2f, 0xfd}):
+		return "is zstd-compressed, not CSV text: decompress it first (unzstd)"
+	case bytes.HasPrefix(head, []byte{0xff, 0xfe}) || bytes.HasPrefix(head, []byte{0xfe, 0xff}):
+		return "is UTF-16 text (it starts with a UTF-16 byte order mark): save it as UTF-8"
+	}
+	if n := bytes.Count(head, []byte{0}); n > 0 {
+		even, odd := 0, 0
+		for i, c := range head {
+			if c == 0 {
+				if i%2 == 0 {
+					even++
+				} else {
+					odd++
+				}
+			}
+		}
+		if len(head) >= 4 && (even >= len(head)/2-1 && odd == 0 || odd >= len(head)/2-1 && even == 0) {
+			return "is UTF-16 text (every other byte is NUL): save it as UTF-8"
+		}
+		return "contains NUL bytes: it is a binary file, not CSV text"
+	}
+	if bytes.IndexByte(head, '\r') >= 0 && bytes.IndexByte(head, '\n') < 0 {
+		return "ends its lines with a carriage return alone (CR, an old Mac format): convert the line ends to LF or CRLF"
+	}
+	return ""
+}
