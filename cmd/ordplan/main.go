@@ -123,7 +123,7 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		dataFile    = fs.String("data", "", "CSV file with a header line (required)")
 		outcome     = fs.String("outcome", "", "outcome column (required)")
 		levels      = fs.String("levels", "", "category labels in order, lowest first (default: integer codes sorted)")
-		predictors  = fs.String("predictors", "", "predictor columns, comma separated")
+		predictors  = fs.String("predictors", "", "predictor terms, comma separated: columns, or the compact forms of categorical columns, transformations and interactions (see below)")
 		approach    = fs.String("approach", "cumulative", "how categories are compared: cumulative, stage or adjacent")
 		direction   = fs.String("direction", "forward", "stage direction: forward or backward")
 		link        = fs.String("link", "logit", "link: logit, probit, cloglog, loglog or cauchit")
@@ -144,6 +144,12 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		queueURL    = qf.url
 		partitions  = fs.String("partitions", "", "fit one model over these CSV files (same columns) through --queue workers, for data too large for one machine")
 	)
+	fs.Usage = func() {
+		fmt.Fprintln(fs.Output(), "Usage of ordplan fit:")
+		fs.PrintDefaults()
+		fmt.Fprintln(fs.Output())
+		fmt.Fprintln(fs.Output(), runner.CompactHelp)
+	}
 	if stop, code := parseFlags(fs, args); stop {
 		return code
 	}
@@ -169,8 +175,16 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "ordplan fit: --direction must be forward or backward, not %q\n", *direction)
 		return exitUsage
 	}
+	dspec, err := runner.ParseCompactTerms(*predictors)
+	if err != nil {
+		return fail(stderr, fmt.Errorf("--predictors: %w", err))
+	}
+	var termNames []string
+	for _, t := range dspec.Terms {
+		termNames = append(termNames, t.Name)
+	}
 	s := runner.SingleFit{DataFile: *dataFile, Outcome: *outcome, Levels: runner.SplitList(*levels),
-		Predictors: runner.SplitList(*predictors), Approach: *approach, Backward: *direction == "backward",
+		Predictors: termNames, Design: &dspec, Approach: *approach, Backward: *direction == "backward",
 		Link: *link, Nonparallel: runner.SplitList(*nonparallel), Weights: *weights, Offset: *offset,
 		Refuse: *missing == "refuse", Covariance: *covariance, Cluster: *cluster, Probability: *weightKind == "probability"}
 	if *allFree {

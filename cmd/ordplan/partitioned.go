@@ -30,6 +30,8 @@ func fitPartitioned(s runner.SingleFit, qf *queueFlags, parts []string, asJSON b
 		return fail(stderr, errors.New("partitioned fits give observed-information standard errors only"))
 	case s.Probability || s.Cluster != "":
 		return fail(stderr, errors.New("partitioned fits take frequency weights only, without clusters"))
+	case !s.PlainColumns():
+		return fail(stderr, errors.New("partitioned fits read numeric columns as they are: categorical columns, transformations and interactions need the whole data in one place (their constants come from all rows)"))
 	}
 	spec := runner.Spec{Approach: s.Approach, Backward: s.Backward, Link: s.Link, Predictors: s.Predictors, Nonparallel: s.Nonparallel, Groups: s.Groups}
 	m, err := spec.Model()

@@ -1,0 +1,218 @@
+package runner
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+
+	"ordplan/runner/design"
+)
+
+// CompactHelp documents the command line's compact form of predictor
+// terms (`ordplan fit --predictors`).
+const CompactHelp = `Predictor terms, comma separated (quote the whole list for the shell):
+  age                         a numeric column as it is
+  site|levels=n/e/s/w         a categorical column with its levels (text in the data); options:
+                              |ref=e (reference level; default the first), |coding=sum or
+                              |coding=successive (ordered levels only), |drop (drop the column
+                              of a listed level no row has, instead of refusing)
+  dose|log                    log(dose); dose|log+1 is log(dose + 1)
+  dose|sqrt                   square root
+  age|centre=mean|scale       centred at the sample mean (or centre=40), divided by the sample SD
+  age|poly=2                  orthogonal polynomial of degree 2 (poly=2raw: raw powers)
+  age|spline=30/45/60         natural cubic spline, knots at 30, 45, 60 (first and last are
+                              the boundary knots); spline=q0.1/0.5/0.9 puts them at quantiles
+  treat&age                   interaction of terms listed before it
+  ...|as=name                 names the term (columns derive from it)
+Transformations apply in this order: log or sqrt, centre, scale, poly or spline. Columns are
+named term, term.level (categorical), term.1, term.2 (polynomial, spline) and a&b (products);
+--nonparallel and --constrained name terms.`
+
+// ParseCompactTerms reads the compact form of predictor terms (see
+// CompactHelp) into the raw columns and terms of a design.
+func ParseCompactTerms(s string) (design.Spec, error) {
+	var spec design.Spec
+	names := map[string]bool{}
+	for i, item := range SplitList(s) {
+		t, src, err := parseCompactTerm(item, names)
+		if err != nil {
+			return spec, fmt.Errorf("predictor %d (%q): %v", i+1, item, err)
+		}
+		if names[t.Name] {
+			return spec, fmt.Errorf("predictor %d (%q): term %q is given twice", i+1, item, t.Name)
+		}
+		names[t.Name] = true
+		t.Key = fmt.Sprintf("--predictors item %d", i+1)
+		spec.Terms = append(spec.Terms, t)
+		if src == nil {
+			continue
+		}
+		known := -1
+		for j, x := range spec.Sources {
+			if x.Name == src.Name {
+				known = j
+			}
+		}
+		switch {
+		case known < 0:
+			spec.Sources = append(spec.Sources, *src)
+		case src.Cat != nil || spec.Sources[known].Cat != nil:
+			if src.Cat == nil || spec.Sources[known].Cat == nil {
+				return spec, fmt.Errorf("predictor %d (%q): column %q is used both as categorical and as numeric", i+1, item, src.Name)
+			}
+		}
+	}
+	return spec, nil
+}
+
+func parseCompactTerm(item string, earlier map[string]bool) (design.TermSpec, *design.Source, error) {
+	var t design.TermSpec
+	parts := strings.Split(item, "|")
+	head := strings.TrimSpace(parts[0])
+	if strings.Contains(head, "&") {
+		for _, p := range strings.Split(head, "&") {
+			p = strings.TrimSpace(p)
+			if !earlier[p] {
+				return t, nil, fmt.Errorf("%q is not a term listed before this interaction", p)
+			}
+			t.Interact = append(t.Interact, p)
+		}
+		t.Name = head
+		for _, o := range parts[1:] {
+			k, v, _ := strings.Cut(strings.TrimSpace(o), "=")
+			if k != "as" {
+				return t, nil, fmt.Errorf("an interaction takes only |as=name, not |%s", o)
+			}
+			t.Name = v
+		}
+		return t, nil, nil
+	}
+	if head == "" {
+		return t, nil, fmt.Errorf("no column")
+	}
+	t.Source = head
+	src := &design.Source{Name: head}
+	var suffix []string
+	for _, o := range parts[1:] {
+		o = strings.TrimSpace(o)
+		k, v, hasV := strings.Cut(o, "=")
+		switch {
+		case k == "levels":
+			src.Cat = &design.Categorical{Levels: strings.Split(v, "/"), Coding: design.Treatment, Unobserved: design.UnobservedRefuse}
+			src.Cat.Reference = src.Cat.Levels[0]
+		case k == "ref" || k == "coding" || k == "drop":
+			// applied below, once the levels are known
+		case k == "log" || strings.HasPrefix(k, "log+"):
+			t.Log = true
+			if k != "log" {
+				x, err := strconv.ParseFloat(strings.TrimPrefix(k, "log+"), 64)
+				if err != nil {
+					return t, nil, fmt.Errorf("bad shift in %q (want log+NUMBER)", o)
+				}
+				t.Shift = x
+			}
+			suffix = append(suffix, "log")
+		case k == "sqrt":
+			t.Sqrt = true
+			suffix = append(suffix, "sqrt")
+		case k == "centre" && hasV:
+			if v == "mean" {
+				t.Centre = "mean"
+			} else {
+				x, err := strconv.ParseFloat(v, 64)
+				if err != nil {
+					return t, nil, fmt.Errorf("centre=%s: want mean or a number", v)
+				}
+				t.Centre, t.CentreAt = "value", x
+			}
+			suffix = append(suffix, "c")
+		case k == "scale":
+			t.Scale = true
+			suffix = append(suffix, "s")
+		case k == "poly" && hasV:
+			raw := strings.HasSuffix(v, "raw")
+			d, err := strconv.Atoi(strings.TrimSuffix(v, "raw"))
+			if err != nil || d < 1 || d > 10 {
+				return t, nil, fmt.Errorf("poly=%s: want a degree from 1 to 10, optionally followed by raw", v)
+			}
+			t.Poly, t.PolyRaw = d, raw
+			suffix = append(suffix, "poly")
+		case k == "spline" && hasV:
+			q := strings.HasPrefix(v, "q")
+			var xs []float64
+			for _, f := range strings.Split(strings.TrimPrefix(v, "q"), "/") {
+				x, err := strconv.ParseFloat(f, 64)
+				if err != nil {
+					return t, nil, fmt.Errorf("spline=%s: %q is not a number", v, f)
+				}
+				if len(xs) > 0 && !(x > xs[len(xs)-1]) {
+					return t, nil, fmt.Errorf("spline=%s: knots must be strictly increasing", v)
+				}
+				if q && (x < 0 || x > 1) {
+					return t, nil, fmt.Errorf("spline=%s: %v is not a probability", v, x)
+				}
+				xs = append(xs, x)
+			}
+			if len(xs) < 3 {
+				return t, nil, fmt.Errorf("spline=%s: a natural cubic spline needs at least 3 knots", v)
+			}
+			if q {
+				t.Quantiles = xs
+			} else {
+				t.Knots = xs
+			}
+			suffix = append(suffix, "spline")
+		case k == "as" && hasV:
+			t.Name = v
+		default:
+			return t, nil, fmt.Errorf("unknown option %q", "|"+o)
+		}
+	}
+	for _, o := range parts[1:] {
+		k, v, _ := strings.Cut(strings.TrimSpace(o), "=")
+		if k != "ref" && k != "coding" && k != "drop" {
+			continue
+		}
+		if src.Cat == nil {
+			return t, nil, fmt.Errorf("|%s needs |levels=... (a categorical column)", k)
+		}
+		switch k {
+		case "ref":
+			found := false
+			for _, l := range src.Cat.Levels {
+				found = found || l == v
+			}
+			if !found {
+				return t, nil, fmt.Errorf("ref=%s is not one of the levels %s", v, strings.Join(src.Cat.Levels, "/"))
+			}
+			src.Cat.Reference = v
+		case "coding":
+			switch v {
+			case design.Treatment, design.Sum:
+			case design.Successive:
+				src.Cat.Ordered = true
+			default:
+				return t, nil, fmt.Errorf("coding=%s: want treatment, sum or successive", v)
+			}
+			src.Cat.Coding = v
+		case "drop":
+			src.Cat.Unobserved = design.UnobservedDrop
+		}
+	}
+	if src.Cat != nil && !t.Transform.Empty() {
+		return t, nil, fmt.Errorf("a categorical column cannot be transformed")
+	}
+	if t.Log && t.Sqrt {
+		return t, nil, fmt.Errorf("give log or sqrt, not both")
+	}
+	if t.Poly > 0 && t.Spline() {
+		return t, nil, fmt.Errorf("give poly or spline, not both")
+	}
+	if t.Name == "" {
+		t.Name = strings.Join(append([]string{head}, suffix...), ".")
+	}
+	if bad := strings.IndexAny(t.Name, " []=+-*,:;()"); bad >= 0 && (len(suffix) > 0 || src.Cat != nil) {
+		return t, nil, fmt.Errorf("term name %q holds %q, which a column name cannot (use |as=name)", t.Name, t.Name[bad])
+	}
+	return t, src, nil
+}
