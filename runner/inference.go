@@ -2,6 +2,7 @@ package runner
 
 import (
 	"fmt"
+	"slices"
 	"strings"
 
 	"ordplan/plan"
@@ -257,7 +258,10 @@ func hypothesisTests(h plan.Hypothesis, or *OutcomeResult) []HypothesisResult {
 		if f.Auxiliary || !f.OK() {
 			continue
 		}
-		hy, err := fit.ParseHypothesis(h.Text, f.Result.ParamNames)
+		hy, err := fit.ParseHypothesis(expandTermHypothesis(h.Text, or.Terms, f.Result.ParamNames), f.Result.ParamNames)
+		if hy != nil {
+			hy.Text = h.Text
+		}
 		if err != nil {
 			lastErr = err
 			if strings.Contains(err.Error(), "is not a parameter") {
@@ -276,4 +280,36 @@ func hypothesisTests(h plan.Hypothesis, or *OutcomeResult) []HypothesisResult {
 		out = append(out, HypothesisResult{Text: h.Text, Line: h.Line, Test: fit.Test{Name: "wald", Reason: reason}})
 	}
 	return out
+}
+
+// expandTermHypothesis rewrites each restriction "TERM = 0" that names a
+// term of several columns (or a term whose column has one parameter per
+// boundary) as "p = 0" for every parameter of the term's columns in the
+// model: the joint hypothesis that the term has no effect. Other
+// restrictions are left as written.
+func expandTermHypothesis(text string, terms []fit.Term, params []string) string {
+	parts := strings.Split(text, ";")
+	for i, part := range parts {
+		lhs, rhs, ok := strings.Cut(part, "=")
+		name := strings.TrimSpace(lhs)
+		if !ok || strings.TrimSpace(rhs) != "0" || slices.Contains(params, name) {
+			continue
+		}
+		for _, t := range terms {
+			if t.Name != name {
+				continue
+			}
+			var eqs []string
+			for _, p := range params {
+				base, _, _ := strings.Cut(p, "[")
+				if slices.Contains(t.Columns, base) {
+					eqs = append(eqs, p+" = 0")
+				}
+			}
+			if len(eqs) > 0 {
+				parts[i] = " " + strings.Join(eqs, "; ")
+			}
+		}
+	}
+	return strings.Join(parts, ";")
 }

@@ -474,3 +474,61 @@ func naturalSpline(x float64, xi []float64) []float64 {
 	}
 	return out
 }
+
+// A subset, an outcome's own predictor list and a hypothesis naming a
+// term, on the invented trial: rows outside the subset are counted as
+// dropped, the outcome's design has only its own terms, and "site = 0"
+// is the joint test of the site columns (the same statistic as the three
+// restrictions written out).
+func TestSubsetOwnPredictorsTermHypothesis(t *testing.T) {
+	csv := inventedTrial(400)
+	young := 0
+	for _, line := range strings.Split(strings.TrimSpace(csv), "\n")[1:] {
+		var age float64
+		fmt.Sscanf(strings.Split(line, ",")[3], "%g", &age)
+		if age < 30 {
+			young++
+		}
+	}
+	src := `version: 1
+data: {file: trial.csv}
+subset:
+  - {column: age, at_least: 30}
+  - {column: site, none_of: [nowhere]}
+outcomes:
+  - column: relief
+    categories: [none, slight, moderate, complete]
+    predictors: [treat, site]
+categorical:
+  treat: {levels: [placebo, drug]}
+  site: {levels: [north, east, south, west]}
+predictors: [treat, site, age]
+models: {approaches: [cumulative], levels: [parallel]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: aic}
+inference:
+  hypotheses: ["site = 0", "site.east = 0; site.south = 0; site.west = 0"]
+`
+	p := writePlan(t, src, map[string]string{"trial.csv": csv})
+	or := runPlan(t, p, 0).Outcomes[0]
+	if or.Data.RowsOutside != young || or.Data.N != 400-young {
+		t.Errorf("subset: %d rows outside, %d used; want %d outside", or.Data.RowsOutside, or.Data.N, young)
+	}
+	if !strings.Contains(or.Data.DropSummary(), fmt.Sprintf("outside the subset age >= 30: %d", young)) {
+		t.Errorf("drop summary %q", or.Data.DropSummary())
+	}
+	if got := strings.Join(or.FitData.Predictors, " "); got != "treat.drug site.east site.south site.west" {
+		t.Errorf("the outcome's own terms: columns %q", got)
+	}
+	var chi []float64
+	for _, h := range or.Hypotheses {
+		if !h.Test.OK || h.Test.DF != 3 {
+			t.Errorf("%s: %+v", h.Text, h.Test)
+		}
+		chi = append(chi, h.Test.Chi2)
+	}
+	if len(chi) != 2 || math.Abs(chi[0]-chi[1]) > 1e-9 {
+		t.Errorf("term hypothesis %v", chi)
+	}
+}
