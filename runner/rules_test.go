@@ -1,10 +1,12 @@
 package runner
 
 import (
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"sort"
 	"strconv"
 	"strings"
 	"testing"
@@ -166,5 +168,116 @@ rules:
 	}
 	if v := verdictOf(or.Rules[0], "stage/nonparallel/logit"); v == nil || !v.Kept {
 		t.Errorf("stage model must be kept: %+v", v)
+	}
+}
+
+// reject_if_sparse within a categorical predictor and within a column no
+// predictor reads, on a small invented data set (fixed seed): counts are
+// taken per level, the model where the categorical term is parallel is
+// not limited by them, and a column outside the model is read from the
+// file for the rows used.
+func TestRuleSparseWithinColumns(t *testing.T) {
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(5, 5))
+	var b strings.Builder
+	b.WriteString("y,x,g,site\n")
+	for i := 0; i < 300; i++ {
+		x := rng.NormFloat64()
+		g := []string{"a", "b", "c"}[i%3]
+		z := x + rng.NormFloat64()
+		y := 1
+		switch {
+		case z > 0.8:
+			y = 3
+		case z > -0.8:
+			y = 2
+		}
+		if g == "c" && y == 1 && rng.IntN(4) > 0 {
+			y = 2 // few low outcomes at level c
+		}
+		site := []string{"north", "south"}[i%2]
+		if i == 7 {
+			site = "" // missing: its own label
+		}
+		fmt.Fprintf(&b, "%d,%.4f,%s,%s\n", y, x, g, site)
+	}
+	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
+	src := `version: 1
+title: sparse
+data: {file: d.csv}
+outcomes: [{column: y}]
+categorical:
+  g: {levels: [a, b, c]}
+predictors: [x, g]
+models: {approaches: [cumulative], levels: [parallel, partial], partial: {free: [g]}}
+tests: {parallel_lines: []}
+rules:
+  - reject_if_sparse: {smallest_category: 12, within: g}
+  - reject_if_sparse: {smallest_category: 30, within: site}
+  - choose: {by: aic, otherwise: cumulative/parallel/logit}
+`
+	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644)
+	p, err := plan.Load(filepath.Join(dir, "p.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	or := runPlan(t, p, 0).Outcomes[0]
+	// Count by hand.
+	counts := map[string][]int{}
+	site := map[string][]int{}
+	for i, l := range strings.Split(strings.TrimSpace(b.String()), "\n")[1:] {
+		f := strings.Split(l, ",")
+		y, _ := strconv.Atoi(f[0])
+		if counts[f[2]] == nil {
+			counts[f[2]] = make([]int, 3)
+		}
+		counts[f[2]][y-1]++
+		s := f[3]
+		if s == "" {
+			s = "(missing)"
+		}
+		if site[s] == nil {
+			site[s] = make([]int, 3)
+		}
+		site[s][y-1]++
+		_ = i
+	}
+	minOf := func(m map[string][]int) (string, int, int) {
+		bestK, bestJ, best := "", 0, 1<<30
+		keys := make([]string, 0, len(m))
+		for k := range m {
+			keys = append(keys, k)
+		}
+		sort.Strings(keys)
+		for _, k := range keys {
+			for j, c := range m[k] {
+				if c < best {
+					bestK, bestJ, best = k, j, c
+				}
+			}
+		}
+		return bestK, bestJ, best
+	}
+	gk, gj, gc := minOf(counts)
+	if gk != "c" || gj != 0 || gc >= 12 {
+		t.Fatalf("test data: smallest count %d at g = %s, category %d", gc, gk, gj+1)
+	}
+	v := verdictOf(or.Rules[0], "cumulative/partial/logit")
+	want := fmt.Sprintf("smallest category count within the 3 values of g: %d (category 1 at g = c) < 12", gc)
+	if v == nil || v.Kept || v.Reason != want {
+		t.Errorf("partial: %+v, want %q", v, want)
+	}
+	if v := verdictOf(or.Rules[0], "cumulative/parallel/logit"); v == nil || !v.Kept || !strings.Contains(v.Reason, "the effect of g is the same in every equation") {
+		t.Errorf("parallel: %+v", v)
+	}
+	sk, sj, sc := minOf(site)
+	v = verdictOf(or.Rules[1], "cumulative/parallel/logit")
+	want = fmt.Sprintf("smallest category count within the 3 values of site: %d (category %d at site = %s)", sc, sj+1, sk)
+	if v == nil || !strings.HasPrefix(v.Reason, want) {
+		t.Errorf("site: %+v, want %q", v, want)
+	}
+	// Every candidate rejected: the fallback is reported.
+	if or.Chosen == nil || !or.Fallback || or.Chosen.ID != "cumulative/parallel/logit" {
+		t.Errorf("chosen %v, fallback %v: %s", or.Chosen, or.Fallback, or.Choice)
 	}
 }
