@@ -3,12 +3,12 @@ package main
 import (
 	"fmt"
 	"io"
-	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
 
 	"ordplan/render"
+	"ordplan/runner"
 	"ordplan/runner/simulate"
 )
 
@@ -56,6 +56,16 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, err)
 		return exitFail
 	}
+	dir := *out
+	if dir == "" {
+		base := filepath.Base(planPath)
+		dir = filepath.Join("out", base[:len(base)-len(filepath.Ext(base))]+"-power")
+	}
+	olock, err := runner.LockOutput(dir)
+	if err != nil {
+		return fail(stderr, err)
+	}
+	defer olock.Unlock()
 	opt := simulate.PowerOptions{Sizes: ns, Replicates: *reps, Alpha: *alpha, Workers: *workers}
 	if !*quiet {
 		opt.Progress = stderr
@@ -68,18 +78,8 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
-	dir := *out
-	if dir == "" {
-		base := filepath.Base(planPath)
-		dir = filepath.Join("out", base[:len(base)-len(filepath.Ext(base))]+"-power")
-	}
-	if err := os.MkdirAll(dir, 0o755); err != nil {
+	if err := runner.WriteReport(dir, []string{"power.json", "power.md", "power.html"}, files); err != nil {
 		return fail(stderr, err)
-	}
-	for _, name := range []string{"power.json", "power.md", "power.html"} {
-		if err := os.WriteFile(filepath.Join(dir, name), files[name], 0o644); err != nil {
-			return fail(stderr, err)
-		}
 	}
 	for _, op := range pr.Outcomes {
 		for _, s := range op.Sizes {

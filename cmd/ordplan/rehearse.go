@@ -52,6 +52,16 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
+	dir := *out
+	if dir == "" {
+		base := filepath.Base(planPath)
+		dir = filepath.Join("out", base[:len(base)-len(filepath.Ext(base))]+"-rehearsal")
+	}
+	olock, err := runner.LockOutput(dir)
+	if err != nil {
+		return fail(stderr, err)
+	}
+	defer olock.Unlock()
 	rows := p.Assumptions.N
 	if *n != 0 {
 		if *n < 10 {
@@ -86,11 +96,6 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 		return fail(stderr, err)
 	}
 	files[simulatedFile] = buf.Bytes()
-	dir := *out
-	if dir == "" {
-		base := filepath.Base(planPath)
-		dir = filepath.Join("out", base[:len(base)-len(filepath.Ext(base))]+"-rehearsal")
-	}
 	if err := runner.WriteFiles(res, dir, files); err != nil {
 		return fail(stderr, err)
 	}
