@@ -132,6 +132,20 @@ func writeDescriptives(d *doc, or *runner.OutcomeResult) {
 		}
 		d.captioned("Predictors by outcome category").table(head, rows)
 	}
+	writeMissing(d, or)
+}
+
+// sharePct writes a share of rows as a percentage with one decimal.
+func sharePct(n, of int) string {
+	if of == 0 {
+		return "0.0%"
+	}
+	return numfmt.Fixed(100*float64(n)/float64(of), 1) + "%"
+}
+
+// writeMissing writes the missingness of the used columns: per column,
+// the joint patterns and by outcome category.
+func writeMissing(d *doc, or *runner.OutcomeResult) {
 	mt := or.Data.Missing
 	if mt == nil {
 		return
@@ -140,15 +154,20 @@ func writeDescriptives(d *doc, or *runner.OutcomeResult) {
 		d.p("No used column (%s) has a missing value.", strings.Join(mt.Columns, ", "))
 		return
 	}
-	d.p("Missing values in the columns the analysis uses. The first row counts the rows missing each column; the others give each combination of missing columns (x) and how many rows have it. Those rows were dropped before any fit.")
-	head := append([]string{"Rows"}, mt.Columns...)
-	row := []string{"missing per column"}
-	for _, c := range mt.ByColumn {
-		row = append(row, fmt.Sprint(c))
+	incomplete := mt.Rows - or.Data.N
+	d.p("Missing values in the columns the analysis uses. Of %d rows, %d (%s) miss at least one used column; they were dropped before any fit, and the %d complete rows (%s) are analysed.",
+		mt.Rows, incomplete, sharePct(incomplete, mt.Rows), or.Data.N, sharePct(or.Data.N, mt.Rows))
+	var rows [][]string
+	for j, c := range mt.Columns {
+		rows = append(rows, []string{"`" + c + "`", fmt.Sprint(mt.ByColumn[j]), sharePct(mt.ByColumn[j], mt.Rows)})
 	}
-	rows := [][]string{row}
+	d.captioned("Missing values per used column").table([]string{"Column", "Rows missing", "Share"}, rows)
+
+	d.p("Each combination of used columns missing together (x) and how many rows have it; the last row is the complete rows.")
+	head := append([]string{"Rows", "Share"}, mt.Columns...)
+	rows = nil
 	for _, p := range mt.Patterns {
-		r := []string{fmt.Sprint(p.Rows)}
+		r := []string{fmt.Sprint(p.Rows), sharePct(p.Rows, mt.Rows)}
 		for _, m := range p.Missing {
 			if m {
 				r = append(r, "x")
@@ -158,7 +177,32 @@ func writeDescriptives(d *doc, or *runner.OutcomeResult) {
 		}
 		rows = append(rows, r)
 	}
-	rows = append(rows, append([]string{fmt.Sprint(or.Data.N)}, make([]string, len(mt.Columns))...))
-	d.captioned("Missing-value pattern of the used columns").table(head, rows)
-	d.p("The last row is the complete rows (nothing missing) that the analysis uses.")
+	rows = append(rows, append([]string{fmt.Sprint(or.Data.N), sharePct(or.Data.N, mt.Rows)}, make([]string, len(mt.Columns))...))
+	d.captioned("Missing-value patterns of the used columns").table(head, rows)
+
+	if len(mt.ByCategory) > 0 {
+		var shown []int // columns other than the outcome with a missing value
+		for j := 1; j < len(mt.Columns); j++ {
+			if mt.ByColumn[j] > 0 {
+				shown = append(shown, j)
+			}
+		}
+		d.p("Rows of each outcome category that miss each other used column with missing values, and that miss any: count (share of the category's rows). Rows whose outcome is missing (%d) belong to no category.", mt.ByColumn[0])
+		head = []string{"Category", "Rows"}
+		for _, j := range shown {
+			head = append(head, "`"+mt.Columns[j]+"`")
+		}
+		head = append(head, "Any")
+		rows = nil
+		for _, cm := range mt.ByCategory {
+			r := []string{cm.Category, fmt.Sprint(cm.Rows)}
+			for _, j := range shown {
+				r = append(r, fmt.Sprintf("%d (%s)", cm.ByColumn[j], sharePct(cm.ByColumn[j], cm.Rows)))
+			}
+			r = append(r, fmt.Sprintf("%d (%s)", cm.Incomplete, sharePct(cm.Incomplete, cm.Rows)))
+			rows = append(rows, r)
+		}
+		d.captioned("Missing values by outcome category").table(head, rows)
+	}
+	d.p("Dropping incomplete rows (complete-case analysis) gives unbiased effects when the chance that a row is incomplete does not depend on the outcome once the predictors are taken into account; it loses precision whenever rows are dropped. Shares that differ between outcome categories suggest that missingness is related to the outcome, and call for an analysis of multiply imputed data as a check.")
 }

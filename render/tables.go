@@ -36,6 +36,14 @@ func csvNum(x float64) string {
 	return strconv.FormatFloat(x, 'g', 12, 64)
 }
 
+// csvShare writes n/of, or 0 when of is 0.
+func csvShare(n, of int) string {
+	if of == 0 {
+		return "0"
+	}
+	return csvNum(float64(n) / float64(of))
+}
+
 func csvBytes(head []string, rows [][]string) []byte {
 	var b bytes.Buffer
 	w := csv.NewWriter(&b)
@@ -85,6 +93,37 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		}
 	}
 	add("descriptives", "each predictor (each level of a categorical one) by outcome category", []string{"predictor", "category", "n", "count", "share", "mean", "sd"}, rows)
+
+	// Missing values.
+	if mt := or.Data.Missing; mt != nil {
+		rows = nil
+		for j, c := range mt.Columns {
+			rows = append(rows, []string{c, "all", strconv.Itoa(mt.Rows), strconv.Itoa(mt.ByColumn[j]), csvShare(mt.ByColumn[j], mt.Rows)})
+		}
+		for _, cm := range mt.ByCategory {
+			for j := 1; j < len(mt.Columns); j++ {
+				rows = append(rows, []string{mt.Columns[j], cm.Category, strconv.Itoa(cm.Rows), strconv.Itoa(cm.ByColumn[j]), csvShare(cm.ByColumn[j], cm.Rows)})
+			}
+			rows = append(rows, []string{"(any)", cm.Category, strconv.Itoa(cm.Rows), strconv.Itoa(cm.Incomplete), csvShare(cm.Incomplete, cm.Rows)})
+		}
+		add("missing", "missing values of each used column, over all rows and by outcome category (column (any): rows missing at least one)",
+			[]string{"column", "category", "rows", "missing", "share"}, rows)
+		rows = nil
+		for _, p := range mt.Patterns {
+			r := []string{strconv.Itoa(p.Rows), csvShare(p.Rows, mt.Rows)}
+			for _, m := range p.Missing {
+				r = append(r, map[bool]string{true: "1", false: "0"}[m])
+			}
+			rows = append(rows, r)
+		}
+		r := []string{strconv.Itoa(or.Data.N), csvShare(or.Data.N, mt.Rows)}
+		for range mt.Columns {
+			r = append(r, "0")
+		}
+		rows = append(rows, r)
+		add("missing-patterns", "each combination of used columns missing together (1 = missing) and its rows; the last line is the complete rows",
+			append([]string{"rows", "share"}, mt.Columns...), rows)
+	}
 
 	// Every candidate fit with its overall fit.
 	rows = nil

@@ -193,24 +193,32 @@ func TestRead(t *testing.T) {
 }
 
 // TestMissingPatterns: every missing cell of a used column is counted,
-// and dropped rows are grouped by the set of columns they miss.
+// dropped rows are grouped by the set of columns they miss, and by the
+// outcome category (counted by hand; category 3 occurs only in an
+// incomplete row and comes last).
 func TestMissingPatterns(t *testing.T) {
-	in := "y,a,b,note\n1,,2,x\n,,,\n2,1,,\n1,,3,\n2,5,6,\n1,7,8,\nNA,1,1,\n"
+	in := "y,a,b,note\n1,,2,x\n,,,\n2,1,,\n1,,3,\n2,5,6,\n1,7,8,\nNA,1,1,\n3,,1,\n"
 	d, err := Read(strings.NewReader(in), "t.csv", Options{Outcome: "y", Predictors: []string{"a", "b"}})
 	if err != nil {
 		t.Fatal(err)
 	}
-	want := &MissingTable{Columns: []string{"y", "a", "b"}, ByColumn: []int{2, 3, 2},
+	want := &MissingTable{Columns: []string{"y", "a", "b"}, ByColumn: []int{2, 4, 2},
 		Patterns: []MissingPattern{
-			{Missing: []bool{false, true, false}, Rows: 2},
+			{Missing: []bool{false, true, false}, Rows: 3},
 			{Missing: []bool{false, false, true}, Rows: 1},
 			{Missing: []bool{true, false, false}, Rows: 1},
 			{Missing: []bool{true, true, true}, Rows: 1},
+		},
+		Rows: 8,
+		ByCategory: []CategoryMissing{
+			{Category: "1", Rows: 3, ByColumn: []int{0, 2, 0}, Incomplete: 2},
+			{Category: "2", Rows: 2, ByColumn: []int{0, 0, 1}, Incomplete: 1},
+			{Category: "3", Rows: 1, ByColumn: []int{0, 1, 0}, Incomplete: 1},
 		}}
 	if !reflect.DeepEqual(d.Missing, want) {
 		t.Errorf("got  %+v\nwant %+v", d.Missing, want)
 	}
-	if d.N != 2 || d.RowsDropped != 5 {
+	if d.N != 2 || d.RowsDropped != 6 {
 		t.Errorf("N %d dropped %d", d.N, d.RowsDropped)
 	}
 }

@@ -61,6 +61,22 @@ type MissingTable struct {
 	Columns  []string
 	ByColumn []int            // rows with a missing value in each column
 	Patterns []MissingPattern // rows dropped, by the set of columns they miss
+	// Rows is the number of rows the table describes: the rows of the
+	// subset, less complete rows of zero weight (complete rows N plus the
+	// rows of Patterns).
+	Rows int
+	// ByCategory gives, for each outcome category (the categories of the
+	// data set in order, then any category seen only in incomplete rows),
+	// how many of its rows miss each other used column.
+	ByCategory []CategoryMissing
+}
+
+// CategoryMissing is the missingness of the rows of one outcome category.
+type CategoryMissing struct {
+	Category   string
+	Rows       int   // rows with this category (complete and incomplete)
+	ByColumn   []int // per column of the table: rows missing it (0 for the outcome)
+	Incomplete int   // rows missing at least one used column
 }
 
 // MissingPattern is a set of columns missing together and how many rows

@@ -44,6 +44,8 @@ func (r *reader) rows() (*Dataset, error) {
 	zeroWeight := 0              // rows with frequency weight 0 stand for no observation
 	patterns := map[string]int{} // which used columns a row misses: 'x' missing, '.' present
 	pat := make([]byte, len(r.cols))
+	catMiss := map[string][]int{} // per outcome value of an incomplete row: rows missing each used column
+	catIncomplete := map[string]int{}
 	xs := make([]float64, d.K)
 	for {
 		rec, err := r.cr.Read()
@@ -77,6 +79,7 @@ func (r *reader) rows() (*Dataset, error) {
 			pat[i] = '.'
 		}
 		y, code, w, off, cl := 0, int64(0), 1.0, 0.0, ""
+		outLabel := "" // the outcome value, when present
 		for ci, c := range r.cols {
 			if c.role == roleSubset {
 				continue
@@ -102,8 +105,10 @@ func (r *reader) rows() (*Dataset, error) {
 						msg = "value " + quoteCell(cell) + " is not one of the declared levels: " + quoteList(opt.Levels)
 					}
 					y = i
+					outLabel = cell
 				} else {
 					code, msg = parseCode(cell)
+					outLabel = strconv.FormatInt(code, 10)
 				}
 			case rolePredictor:
 				if idx, cat := levelIndex[c.name]; cat {
@@ -132,6 +137,19 @@ func (r *reader) rows() (*Dataset, error) {
 		if miss >= 0 {
 			drops[miss]++
 			patterns[string(pat)]++
+			if pat[0] != 'x' {
+				cm := catMiss[outLabel]
+				if cm == nil {
+					cm = make([]int, len(r.cols))
+					catMiss[outLabel] = cm
+				}
+				for ci := range pat {
+					if pat[ci] == 'x' {
+						cm[ci]++
+					}
+				}
+				catIncomplete[outLabel]++
+			}
 			continue
 		}
 		if w == 0 {
@@ -219,7 +237,51 @@ func (r *reader) rows() (*Dataset, error) {
 	if err := r.tally(d); err != nil {
 		return nil, err
 	}
+	d.Missing.byCategory(r.cols, d, catMiss, catIncomplete)
 	return d, nil
+}
+
+// byCategory fills the missingness by outcome category: the kept rows of
+// each category and the incomplete rows whose outcome is that category.
+// Categories seen only in incomplete rows follow the data set's, sorted.
+func (t *MissingTable) byCategory(cols []usedCol, d *Dataset, catMiss map[string][]int, catIncomplete map[string]int) {
+	var idx []int
+	for i, c := range cols {
+		if c.role != roleSubset {
+			idx = append(idx, i)
+		}
+	}
+	kept := make([]int, len(d.Levels))
+	for _, y := range d.Y {
+		kept[y]++
+	}
+	t.Rows = d.N
+	for _, p := range t.Patterns {
+		t.Rows += p.Rows
+	}
+	add := func(label string, complete int) {
+		cm := CategoryMissing{Category: label, ByColumn: make([]int, len(idx)), Incomplete: catIncomplete[label]}
+		cm.Rows = complete + cm.Incomplete
+		if m := catMiss[label]; m != nil {
+			for j, i := range idx {
+				cm.ByColumn[j] = m[i]
+			}
+		}
+		t.ByCategory = append(t.ByCategory, cm)
+	}
+	for j, l := range d.Levels {
+		add(l, kept[j])
+	}
+	var extra []string
+	for l := range catIncomplete {
+		if !slices.Contains(d.Levels, l) {
+			extra = append(extra, l)
+		}
+	}
+	slices.Sort(extra)
+	for _, l := range extra {
+		add(l, 0)
+	}
 }
 
 // codeLevels sets y to the index of each code among the distinct codes,
