@@ -1,14 +1,20 @@
 package main
 
 import (
+	"context"
 	"fmt"
 	"io"
+	"os"
+	"os/signal"
 	"path/filepath"
 	"strconv"
 	"strings"
+	"syscall"
 
+	"ordplan/plan"
 	"ordplan/render"
 	"ordplan/runner"
+	"ordplan/runner/queue"
 	"ordplan/runner/simulate"
 )
 
@@ -24,6 +30,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 	out := fs.String("out", "", "output directory (default: out/<plan name>-power)")
 	workers := fs.Int("workers", 0, "replicates run at once (default: all cores); results do not depend on it")
 	quiet := fs.Bool("quiet", false, "no progress lines")
+	qf := addQueueFlags(fs, "run each replicate's fits on ordplan worker processes through the JetStream server at this NATS URL", true)
 	planPath, args := leadingArg(args)
 	if stop, code := parseFlags(fs, args); stop {
 		return code
@@ -51,6 +58,14 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, "ordplan power: --alpha must be between 0 and 1")
 		return exitUsage
 	}
+	var qcfg *queue.Config
+	if *qf.url != "" {
+		cfg, err := qf.config("ordplan power " + planPath)
+		if err != nil {
+			return usageOrFail("power", err, stderr)
+		}
+		qcfg = &cfg
+	}
 	p, err := loadForSimulation(planPath)
 	if err != nil {
 		fmt.Fprintln(stderr, err)
@@ -69,6 +84,33 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 	opt := simulate.PowerOptions{Sizes: ns, Replicates: *reps, Alpha: *alpha, Workers: *workers}
 	if !*quiet {
 		opt.Progress = stderr
+	}
+	if qcfg != nil {
+		ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+		defer stop()
+		c, err := queue.Connect(ctx, *qcfg)
+		if err != nil {
+			return fail(stderr, err)
+		}
+		defer c.Close()
+		c.JobDeadline = *qf.deadline
+		var qlog io.Writer
+		if !*quiet {
+			qlog = stderr
+		}
+		// One coordinator per replicate: its jobs carry the replicate's
+		// data hash, so replicates never share results.
+		opt.Run = func(q *plan.Plan) (*runner.Result, error) {
+			co := queue.NewCoordinator(ctx, c, q.Hash, qlog)
+			if _, err := co.AddData(q.Data.Path); err != nil {
+				return nil, err
+			}
+			res, err := runner.Run(q, runner.Options{Workers: 1, Executor: co})
+			if err == nil {
+				err = co.Err()
+			}
+			return res, err
+		}
 	}
 	pr, err := simulate.Power(p, opt)
 	if err != nil {

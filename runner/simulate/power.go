@@ -25,6 +25,9 @@ type PowerOptions struct {
 	Alpha      float64   // level of the hypothesis tests (default 0.05)
 	Workers    int       // replicates run at once (default: all cores)
 	Progress   io.Writer // progress lines (nil: none)
+	// Run runs the plan on one replicate (nil: here, one fit at a time);
+	// `ordplan power --queue` sends each replicate's fits to workers.
+	Run func(*plan.Plan) (*runner.Result, error)
 }
 
 // Rate is a proportion of replicates with its Monte Carlo standard error
@@ -154,7 +157,7 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 					if r >= opt.Replicates {
 						return
 					}
-					reps[r] = runReplicate(p, sim, n, r, path, opt.Alpha)
+					reps[r] = runReplicate(p, sim, n, r, path, opt)
 					mu.Lock()
 					done++
 					if opt.Progress != nil {
@@ -176,7 +179,8 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 }
 
 // runReplicate simulates replicate r of size n and runs the plan on it.
-func runReplicate(p *plan.Plan, sim *Sim, n, r int, path string, alpha float64) replicate {
+func runReplicate(p *plan.Plan, sim *Sim, n, r int, path string, opt PowerOptions) replicate {
+	alpha := opt.Alpha
 	var buf bytes.Buffer
 	if err := sim.Write(&buf, n, uint64(r)); err != nil {
 		return replicate{err: err.Error()}
@@ -187,7 +191,11 @@ func runReplicate(p *plan.Plan, sim *Sim, n, r int, path string, alpha float64) 
 	q := *p
 	q.Data.Path = path
 	q.Data.File = fmt.Sprintf("simulated n=%d replicate %d", n, r+1)
-	res, err := runner.Run(&q, runner.Options{Workers: 1})
+	run := opt.Run
+	if run == nil {
+		run = func(q *plan.Plan) (*runner.Result, error) { return runner.Run(q, runner.Options{Workers: 1}) }
+	}
+	res, err := run(&q)
 	if err != nil {
 		return replicate{err: err.Error()}
 	}
