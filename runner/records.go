@@ -189,16 +189,19 @@ func nonNilDrops(xs []data.DropCount) []data.DropCount {
 	return xs
 }
 
-// MarshalStable encodes v as indented JSON with a final newline.
+// MarshalStable encodes v as indented JSON with a final newline; a number
+// that does not exist (NaN, an infinity) is written as null.
 func MarshalStable(v any) ([]byte, error) {
-	var buf bytes.Buffer
-	enc := json.NewEncoder(&buf)
-	enc.SetIndent("", "  ")
-	enc.SetEscapeHTML(false)
-	if err := enc.Encode(v); err != nil {
-		return nil, err
-	}
-	return buf.Bytes(), nil
+	return marshalFinite(v, func(v any) ([]byte, error) {
+		var buf bytes.Buffer
+		enc := json.NewEncoder(&buf)
+		enc.SetIndent("", "  ")
+		enc.SetEscapeHTML(false)
+		if err := enc.Encode(v); err != nil {
+			return nil, err
+		}
+		return buf.Bytes(), nil
+	})
 }
 
 // RunRecord is the content of run.json: what produced the outputs.

@@ -203,8 +203,15 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		}
 		fmt.Fprintf(&two, "%s,%s,%s,%s\n", f[0], other, f[1], f[2])
 	}
+	var scales strings.Builder
+	scales.WriteString("y,a,b,e90,em90,e160,em160,em300\n")
+	for _, r := range rows {
+		f := strings.Split(r, ",")
+		fmt.Fprintf(&scales, "%s,%s,%s,%se90,%se-90,%se160,%se-160,%se-300\n", f[0], f[1], f[2], f[1], f[1], f[1], f[1], f[1])
+	}
 	files := map[string][]byte{
-		"gz.csv": gz.Bytes(), "u16.csv": u16(true), "u16nobom.csv": u16(false),
+		"scales.csv": []byte(scales.String()),
+		"gz.csv":     gz.Bytes(), "u16.csv": u16(true), "u16nobom.csv": u16(false),
 		"cr.csv": []byte(strings.ReplaceAll(csv, "\n", "\r")), "two.csv": []byte(two.String()),
 		"new.csv": []byte("a,b\n0.5,1\n-1,0\n"), "short.key": []byte("short\n"), "precious.txt": []byte("keep me\n"),
 	}
@@ -504,6 +511,21 @@ func catalogue(dir string) (items []badInput) {
 						"overflows to +Inf and the test sd <= 1e-12*scale holds for Inf)"
 				}
 				return ""
+			}},
+		{id: "M12", name: "predictor in units of 1e-160", args: fitArgs(d("scales.csv"), "--predictors", "em160,b", "--json"), code: 1,
+			want: []string{`predictor "em160" has values no larger than 1.9917e-160 in absolute value: too small to fit exactly (the largest value must be at least 1e-100); rescale the predictor (for example multiply it by 1e160)`}},
+		{id: "M13", name: "predictor in units of 1e-300 (distinct values, not constant)", args: fitArgs(d("scales.csv"), "--predictors", "em300,b"), code: 1,
+			want: []string{`predictor "em300" has values no larger than 1.9917e-300 in absolute value: too small to fit exactly`}},
+		{id: "M14", name: "predictor in units of 1e+160", args: fitArgs(d("scales.csv"), "--predictors", "e160,b"), code: 1,
+			want: []string{`predictor "e160" has the value `, `too large to fit (values up to 1e+100 can be fitted exactly); rescale the predictor (for example divide it by 1e160)`}},
+		{id: "M15", name: "predictors in units of 1e90 and 1e-90", args: fitArgs(d("scales.csv"), "--predictors", "e90,b", "--json"), code: 0,
+			want: []string{`"status": "ok"`}, check: func(t *testing.T, dir, out, errs string) {
+				scaled("e90", 1e90)(t, dir, out, errs)
+				tiny, e, code := runCLI(fitArgs(filepath.Join(dir, "scales.csv"), "--predictors", "em90,b", "--json", "--all-nonparallel")...)
+				if code != 0 {
+					t.Fatalf("em90: exit %d: %s", code, e)
+				}
+				scaled("em90", 1e-90, "--all-nonparallel")(t, dir, tiny, "")
 			}},
 
 		// Weights.

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"encoding/json"
 	"errors"
 	"flag"
 	"fmt"
@@ -229,11 +228,11 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 			runner.FitRecord
 			Baseline *fit.Baseline `json:"baseline,omitempty"`
 		}{rec, base}
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		if err := enc.Encode(out); err != nil {
+		b, err := runner.MarshalStable(out)
+		if err != nil {
 			return fail(stderr, err)
 		}
+		stdout.Write(b)
 	} else {
 		sum := render.DataSummary{File: *dataFile, Outcome: *outcome, RowsRead: ds.RowsRead, RowsUsed: ds.N, DropSummary: ds.DropSummary()}
 		if err := render.FitTable(stdout, res, sum, *level); err != nil {

@@ -2,7 +2,6 @@ package main
 
 import (
 	"context"
-	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -60,11 +59,11 @@ func fitPartitioned(s runner.SingleFit, qf *queueFlags, parts []string, asJSON b
 		return fail(stderr, err)
 	}
 	if asJSON {
-		enc := json.NewEncoder(stdout)
-		enc.SetIndent("", "  ")
-		if err := enc.Encode(runner.Record(res)); err != nil {
+		b, err := runner.MarshalStable(runner.Record(res))
+		if err != nil {
 			return fail(stderr, err)
 		}
+		stdout.Write(b)
 	} else {
 		sum := render.DataSummary{File: fmt.Sprintf("%d partitions", len(parts)), Outcome: s.Outcome, RowsRead: read, RowsUsed: whole.Rows,
 			DropSummary: fmt.Sprintf("%d rows dropped for missing values or zero weight", read-whole.Rows)}

@@ -31,11 +31,25 @@ func (d *Data) checkRank(m Model) error {
 		}
 		return d.Weights[i]
 	}
+	// Units: squares and cross-products of a predictor must be ordinary
+	// floating-point numbers for the information to be exact. Within
+	// [minScale, maxScale] the unit-diagonal scaling of the engine gives
+	// the same fit in any units (tested at 1e-100 and 1e100); outside, the
+	// predictor is refused with the factor that brings it back.
 	for k := 0; k < K; k++ {
+		maxAbs, at := 0.0, 0
 		for i := 0; i < n; i++ {
-			if v := math.Abs(d.X[i*K+k]); v > 1e150 {
-				return inputErr("predictor %q has the value %g in row %d: too large to fit; rescale the predictor (for example to thousands or millions of units)", d.Predictors[k], d.X[i*K+k], i+1)
+			if v := math.Abs(d.X[i*K+k]); v > maxAbs {
+				maxAbs, at = v, i
 			}
+		}
+		switch {
+		case maxAbs > maxScale:
+			return inputErr("predictor %q has the value %g in row %d: too large to fit (values up to %g can be fitted exactly); rescale the predictor (for example divide it by 1e%d)",
+				d.Predictors[k], d.X[at*K+k], at+1, maxScale, int(math.Floor(math.Log10(maxAbs))))
+		case maxAbs > 0 && maxAbs < minScale:
+			return inputErr("predictor %q has values no larger than %g in absolute value: too small to fit exactly (the largest value must be at least %g); rescale the predictor (for example multiply it by 1e%d)",
+				d.Predictors[k], maxAbs, minScale, -int(math.Floor(math.Log10(maxAbs))))
 		}
 	}
 	mean := make([]float64, K)
@@ -111,6 +125,12 @@ func (d *Data) checkRank(m Model) error {
 	}
 	return nil
 }
+
+// The range of predictor magnitudes (largest absolute value) a fit takes.
+const (
+	minScale = 1e-100
+	maxScale = 1e100
+)
 
 func quoteAll(xs []string) []string {
 	out := make([]string, len(xs))
