@@ -12,9 +12,9 @@ import "fmt"
 // to the number of parameters and TIC to AIC; unlike AIC it stays valid
 // for a pseudo-likelihood. With sampling weights (probability true) the
 // weights are first scaled to sum to the number of rows, which leaves the
-// estimates unchanged and makes the criterion the design-based AIC of a
-// survey fit; then A = sum w_i H_i and B = sum w_i^2 s_i s_i'. With
-// frequency weights B = sum w_i s_i s_i'.
+// estimates unchanged and puts the criterion on the scale of the sample
+// (see docs/models.md); then A = sum w_i H_i and B = sum w_i^2 s_i s_i'.
+// With frequency weights B = sum w_i s_i s_i'.
 func TIC(d *Data, r *Result, probability bool) (value, penalty float64, err error) {
 	if !r.OK() {
 		return 0, 0, fmt.Errorf("%s has no usable estimates (%s)", r.Name, r.Status)
