@@ -1,6 +1,7 @@
 package runner
 
 import (
+	"bytes"
 	"encoding/json"
 	"fmt"
 	"math"
@@ -530,5 +531,22 @@ inference:
 	}
 	if len(chi) != 2 || math.Abs(chi[0]-chi[1]) > 1e-9 {
 		t.Errorf("term hypothesis %v", chi)
+	}
+}
+
+// Fits of a plan with categorical, transformed and interaction terms run
+// elsewhere (each job rebuilds the design from the data and the plan's
+// terms) give the same decisions, byte for byte.
+func TestExecutorWithTerms(t *testing.T) {
+	files := map[string]string{"trial.csv": inventedTrial(300), "new.csv": trialNewRows}
+	p := writePlan(t, strings.Replace(trialPlan, "CODING", "sum", 1), files)
+	local, _ := MarshalStable(BuildDecisions(runPlan(t, p, 0)))
+	r, err := Run(p, Options{Executor: gobExecutor{p.Data.Path}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	remote, _ := MarshalStable(BuildDecisions(r))
+	if !bytes.Equal(local, remote) {
+		t.Fatal("decisions differ when the fits run through the executor")
 	}
 }
