@@ -36,6 +36,9 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			d.p("Not computed: %s.", set.Error)
 			continue
 		}
+		for _, n := range set.Notes {
+			d.p("%s", n)
+		}
 		var rows [][]string
 		for _, me := range set.Effects {
 			change := "per unit"

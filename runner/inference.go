@@ -2,6 +2,7 @@ package runner
 
 import (
 	"fmt"
+	"math"
 	"slices"
 	"strings"
 
@@ -30,6 +31,8 @@ type MarginalSet struct {
 	AtLevels []string             `json:"at_levels,omitempty"` // the level of each categorical column of At
 	Effects  []fit.MarginalEffect `json:"effects"`
 	Error    string               `json:"error,omitempty"`
+	// Notes name the columns whose effects could not be computed, and why.
+	Notes []string `json:"notes,omitempty"`
 }
 
 // NewRows are the chosen model's predictions for the plan's new rows.
@@ -59,7 +62,7 @@ func runInference(p *plan.Plan, or *OutcomeResult) error {
 		var err error
 		switch kind {
 		case "average":
-			set.Effects, err = sourceEffects(or, res, or.Data.X, or.Data.N, or.Data.Offset, or.Data.Weights, level)
+			set.Effects, set.Notes, err = sourceEffects(or, res, or.Data.X, or.Data.N, or.Data.Offset, or.Data.Weights, level)
 		default:
 			raw := or.representative(inf.At, kind == "values")
 			set.At = raw
@@ -68,7 +71,7 @@ func runInference(p *plan.Plan, or *OutcomeResult) error {
 			if or.Data.Offset != nil {
 				off = []float64{weightedMean(or.Data.Offset, or.Data.Weights)}
 			}
-			set.Effects, err = sourceEffects(or, res, raw, 1, off, nil, level)
+			set.Effects, set.Notes, err = sourceEffects(or, res, raw, 1, off, nil, level)
 		}
 		if err != nil {
 			set.Error = err.Error()
@@ -110,10 +113,11 @@ func runInference(p *plan.Plan, or *OutcomeResult) error {
 // the change from 0 to 1; for any other numeric column the derivative,
 // pushed through every design column the variable enters (transformation,
 // polynomial, spline, interaction).
-func sourceEffects(or *OutcomeResult, res *fit.Result, raw []float64, n int, off, w []float64, level float64) ([]fit.MarginalEffect, error) {
+func sourceEffects(or *OutcomeResult, res *fit.Result, raw []float64, n int, off, w []float64, level float64) ([]fit.MarginalEffect, []string, error) {
 	dz := or.Design
 	S, K := len(dz.Sources), len(dz.Columns)
 	var out []fit.MarginalEffect
+	var notes []string
 	design := func(set func(r []float64)) ([]float64, error) {
 		X := make([]float64, n*K)
 		r := make([]float64, S)
@@ -141,16 +145,16 @@ func sourceEffects(or *OutcomeResult, res *fit.Result, raw []float64, n int, off
 			}
 			X0, err := design(func(r []float64) { r[s] = from })
 			if err != nil {
-				return nil, err
+				return nil, nil, err
 			}
 			for t, to := range tos {
 				X1, err := design(func(r []float64) { r[s] = to })
 				if err != nil {
-					return nil, err
+					return nil, nil, err
 				}
 				eff, err := res.AverageDifference(src.Name, X0, X1, off, w, level)
 				if err != nil {
-					return nil, err
+					return nil, nil, err
 				}
 				for i := range eff {
 					eff[i].Change = labels[t]
@@ -161,21 +165,32 @@ func sourceEffects(or *OutcomeResult, res *fit.Result, raw []float64, n int, off
 		}
 		X := make([]float64, n*K)
 		dX := make([]float64, n*K)
+		infinite := 0
 		for i := 0; i < n; i++ {
 			if err := dz.Derivative(raw[i*S:(i+1)*S], s, X[i*K:(i+1)*K], dX[i*K:(i+1)*K]); err != nil {
-				return nil, err
+				return nil, nil, err
 			}
+			for _, v := range dX[i*K : (i+1)*K] {
+				if math.IsInf(v, 0) || math.IsNaN(v) {
+					infinite++
+					break
+				}
+			}
+		}
+		if infinite > 0 {
+			notes = append(notes, fmt.Sprintf("The effect of %s is not computed: its derivative is infinite at %d of the %d rows (a square root at 0); a log with a shift, or a change between stated values, gives a finite effect.", src.Name, infinite, n))
+			continue
 		}
 		eff, err := res.AverageSlope(src.Name, X, dX, off, w, level)
 		if err != nil {
-			return nil, err
+			return nil, nil, err
 		}
 		for i := range eff {
 			eff[i].Change = "per unit"
 		}
 		out = append(out, eff...)
 	}
-	return out, nil
+	return out, notes, nil
 }
 
 // binarySource reports whether numeric source s takes only 0 and 1.
