@@ -197,5 +197,26 @@ func boundaryChart(d *doc, pred string, bounds []string, est, se []float64, z, l
 		l.AddSeries("parallel", lineData(flat), lineStyle(colorParallel, 2, false, false)...)
 		caption += ", and the parallel slope (flat line)"
 	}
-	return newChart(id, 340, caption+".", l)
+	fig := newFigure(pred+": slope at each boundary", "boundary", "slope")
+	fig.xNames = bounds
+	fig.series = append([]figSeries{
+		{name: band, color: colorEstimate, ys: lo, dashed: true, width: 1, legend: true},
+		{name: band, color: colorEstimate, ys: hi, dashed: true, width: 1},
+		{name: "nonparallel", color: colorEstimate, ys: est, points: true, width: 2, legend: true},
+	}, fig.series...)
+	if chosen != nil {
+		cv := make([]float64, q)
+		for m := range cv {
+			cv[m] = chosen.Effects[m][k]
+		}
+		fig.series = append(fig.series, figSeries{name: chosenLevel + " (chosen)", color: colorChosen, ys: cv, dashed: true, points: true, legend: true})
+	}
+	if par != nil {
+		flat := make([]float64, q)
+		for m := range flat {
+			flat[m] = par.Result.Effects[m][k]
+		}
+		fig.series = append(fig.series, figSeries{name: "parallel", color: colorParallel, ys: flat, legend: true})
+	}
+	return newChart(id, 340, caption+".", l).with(fig)
 }

@@ -18,7 +18,14 @@ type chart struct {
 	id      string
 	height  int // pixels; the width follows the page
 	caption string
-	option  string // JSON
+	option  string  // JSON
+	static  *figure // the same chart as a static image for report.md (nil: none)
+}
+
+// with attaches the static version of the chart.
+func (c *chart) with(f *figure) *chart {
+	c.static = f
+	return c
 }
 
 // echartsChart is what every go-echarts chart type offers.
@@ -102,10 +109,12 @@ func lineStyle(color string, width float32, dashed, symbols bool) []charts.Serie
 	return o
 }
 
-// categoryAnchors run from the lowest category (red) to the highest
-// (blue); categoryColor spreads the categories of an outcome over them, so
-// neighbouring categories get neighbouring colours.
-var categoryAnchors = [][3]float64{{0xc0, 0x39, 0x2b}, {0xe6, 0x7e, 0x22}, {0xb7, 0x95, 0x0b}, {0x16, 0xa0, 0x85}, {0x24, 0x71, 0xa3}}
+// categoryAnchors are a sequential palette, light to dark: the lowest
+// category is the lightest and the highest the darkest, so that the order
+// of the categories reads from the colours alone; categoryColor spreads
+// the categories of an outcome over it. Even the lightest stands out on
+// white.
+var categoryAnchors = [][3]float64{{0xc9, 0xb2, 0x4a}, {0x8c, 0xb3, 0x5a}, {0x3e, 0x9a, 0x7a}, {0x2a, 0x6f, 0x8e}, {0x2c, 0x2f, 0x6b}}
 
 // categoryColor is the colour of category j of J.
 func categoryColor(j, J int) string {

@@ -16,6 +16,7 @@ import (
 func criteriaChart(d *doc, or *runner.OutcomeResult) *chart {
 	var names []string
 	var aic, bic []opts.ScatterData
+	var aicV, bicV []float64
 	var missing []string
 	for _, f := range or.Fits {
 		if f.Auxiliary {
@@ -33,6 +34,7 @@ func criteriaChart(d *doc, or *runner.OutcomeResult) *chart {
 		}
 		names = append(names, name)
 		aic = append(aic, opts.ScatterData{Value: val(f.Result.AIC), Symbol: sym, SymbolSize: size})
+		aicV, bicV = append(aicV, f.Result.AIC), append(bicV, f.Result.BIC)
 		bic = append(bic, opts.ScatterData{Value: val(f.Result.BIC), Symbol: sym, SymbolSize: size})
 	}
 	if len(names) == 0 {
@@ -51,5 +53,11 @@ func criteriaChart(d *doc, or *runner.OutcomeResult) *chart {
 	s.SetXAxis(names)
 	s.AddSeries("AIC", aic, charts.WithItemStyleOpts(opts.ItemStyle{Color: colorEstimate}))
 	s.AddSeries("BIC", bic, charts.WithItemStyleOpts(opts.ItemStyle{Color: colorParallel}))
-	return newChart(id, 440, caption, s)
+	fig := newFigure("Information criteria of the candidate models", "", "criterion")
+	fig.xNames = names
+	fig.series = []figSeries{
+		{name: "AIC", color: colorEstimate, ys: aicV, points: true, noLine: true, legend: true},
+		{name: "BIC", color: colorParallel, ys: bicV, points: true, noLine: true, legend: true},
+	}
+	return newChart(id, 440, caption, s).with(fig)
 }

@@ -201,10 +201,18 @@ func (d *doc) markdown() []byte {
 		case pt.charts == nil:
 			out.WriteString(pt.md)
 		default:
+			all := true
 			for _, c := range pt.charts {
+				if c.static != nil {
+					fmt.Fprintf(&out, "![Figure %d](%s)\n\n", c.number, figureFile(c.number))
+				} else {
+					all = false
+				}
 				fmt.Fprintf(&out, "**Figure %d.** %s\n\n", c.number, c.caption)
 			}
-			fmt.Fprintf(&out, "*%s*\n\n", pt.note)
+			if !all {
+				fmt.Fprintf(&out, "*%s*\n\n", pt.note)
+			}
 		}
 	}
 	return out.Bytes()

@@ -134,6 +134,9 @@ func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 	}
 	l.SetXAxis(groups)
 	J := len(t.Levels)
+	fig := newFigure("Observed and expected by group of predicted score", "group of predicted score", "share of the group")
+	fig.xNames = groups
+	fig.yMin = 0
 	for j, lv := range t.Levels {
 		obs, exp := make([]float64, t.Groups), make([]float64, t.Groups)
 		for g := 0; g < t.Groups; g++ {
@@ -142,9 +145,10 @@ func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 		}
 		col := categoryColor(j, J)
 		l.AddSeries(lv+" expected", lineData(exp), lineStyle(col, 2, false, false)...)
+		fig.series = append(fig.series, figSeries{name: lv, color: col, ys: exp, legend: true}, figSeries{name: lv + " observed", color: col, ys: obs, points: true, noLine: true})
 		l.AddSeries(lv+" observed", lineData(obs), append(lineStyle(col, 0, false, true),
 			charts.WithLineStyleOpts(opts.LineStyle{Color: col, Width: 0, Opacity: opts.Float(0)}))...)
 	}
 	caption := "For each category, the expected share of each group (line) and the observed share (points). Points far from their line, in a pattern, show where the model misfits; groups are ordered by predicted score."
-	return newChart(id, 420, caption, l)
+	return newChart(id, 420, caption, l).with(fig)
 }

@@ -19,6 +19,7 @@ th{background:#f2f2f2;white-space:nowrap}td{white-space:nowrap}td[style*="right"
 nav.toc ul{margin:0.2em 0}tr:nth-child(even) td{background:#fafafa}code{background:#f4f4f4;padding:0 0.2em}h2{border-bottom:2px solid #ddd;padding-bottom:0.2em;margin-top:2em}
 .chart-group{display:flex;flex-wrap:wrap;gap:1em;margin:1em 0 1.5em}.chart-figure{flex:1 1 480px;margin:0;border:1px solid #e3e3e3;padding:0.5em;min-width:0}
 .chart-figure.wide{flex-basis:100%}.chart{width:100%}figcaption{font-size:0.85em;color:#444;margin-top:0.3em}
+.chart-tools{font-size:0.8em;color:#555;margin-top:0.3em}.chart-tools button{font-size:1em;padding:0.1em 0.6em;margin-left:0.2em;border:1px solid #bbb;background:#f7f7f7;border-radius:3px;cursor:pointer}@media print{.chart-tools{display:none}}
 #js-errors{white-space:pre-wrap;color:#a00;border:2px solid #a00;padding:0.5em;margin:1em 0}#js-errors:empty{display:none}`
 
 // errorScript runs first: any script error on the page, or message to
@@ -28,8 +29,17 @@ const errorScript = `window.ordplanError=function(msg){var e=document.getElement
 window.onerror=function(msg,src,line){window.ordplanError("script error: "+msg+" (line "+line+")");};
 (function(){var ce=console.error;console.error=function(){window.ordplanError("console.error: "+Array.prototype.join.call(arguments," "));return ce.apply(console,arguments);};})();`
 
-// drawScript draws one chart and marks its element with data-rendered="1".
-const drawScript = `function ordplanDraw(id,option){var el=document.getElementById(id);try{var c=echarts.init(el,null,{renderer:"canvas"});c.setOption(option);el.setAttribute("data-rendered","1");window.addEventListener("resize",function(){c.resize();});}catch(e){window.ordplanError(id+": "+e);}}`
+// drawScript draws one chart, marks its element with data-rendered="1"
+// and keeps the chart and its option for the export buttons: PNG from the
+// drawn chart, SVG from a copy drawn once, off screen, by the library's SVG
+// renderer.
+const drawScript = `var ordplanCharts={};
+function ordplanDraw(id,option){var el=document.getElementById(id);try{var c=echarts.init(el,null,{renderer:"canvas"});c.setOption(option);ordplanCharts[id]={chart:c,option:option};el.setAttribute("data-rendered","1");window.addEventListener("resize",function(){c.resize();});}catch(e){window.ordplanError(id+": "+e);}}
+function ordplanSave(url,name){var a=document.createElement("a");a.href=url;a.download=name;document.body.appendChild(a);a.click();document.body.removeChild(a);}
+function ordplanExport(id,kind){var k=ordplanCharts[id];if(!k){window.ordplanError(id+": not drawn, nothing to export");return;}try{if(kind==="png"){ordplanSave(k.chart.getDataURL({type:"png",pixelRatio:2,backgroundColor:"#ffffff"}),id+".png");return;}
+var el=document.getElementById(id),box=document.createElement("div");box.style.cssText="position:absolute;left:-10000px;top:0;width:"+el.clientWidth+"px;height:"+el.clientHeight+"px";document.body.appendChild(box);
+var s=echarts.init(box,null,{renderer:"svg"});s.setOption(k.option);var url=s.getDataURL({type:"svg",backgroundColor:"#ffffff"});s.dispose();document.body.removeChild(box);ordplanSave(url,id+".svg");}catch(e){window.ordplanError(id+": export failed: "+e);}}
+document.addEventListener("click",function(ev){var b=ev.target.closest?ev.target.closest("button[data-export]"):null;if(b){ordplanExport(b.getAttribute("data-chart"),b.getAttribute("data-export"));}});`
 
 // html renders the self-contained report.html: the report's Markdown as
 // HTML, each chart group where report.md has its note, the chart library
@@ -71,8 +81,9 @@ func (d *doc) html(title string) ([]byte, error) {
 			if len(pt.charts) == 1 {
 				class += " wide"
 			}
-			fmt.Fprintf(&out, "<figure class=\"%s\"><div class=\"chart\" id=\"%s\" style=\"height:%dpx\"></div><figcaption><b>Figure %d.</b> %s</figcaption></figure>\n",
-				class, c.id, c.height, c.number, html.EscapeString(c.caption))
+			fmt.Fprintf(&out, "<figure class=\"%s\"><div class=\"chart\" id=\"%s\" style=\"height:%dpx\"></div><figcaption><b>Figure %d.</b> %s</figcaption>"+
+				"<div class=\"chart-tools\">Save: <button type=\"button\" data-export=\"png\" data-chart=\"%s\">PNG</button> <button type=\"button\" data-export=\"svg\" data-chart=\"%s\">SVG</button></div></figure>\n",
+				class, c.id, c.height, c.number, html.EscapeString(c.caption), c.id, c.id)
 		}
 		out.WriteString("</div>\n")
 	}

@@ -25,6 +25,16 @@ func Outputs(r *runner.Result, dec *runner.Decisions, changes []string) (map[str
 		"report.html":    page,
 	}
 	owner := map[string]string{}
+	for _, c := range d.allCharts() {
+		if c.static == nil {
+			continue
+		}
+		svg, err := c.static.svg()
+		if err != nil {
+			return nil, fmt.Errorf("figure %d: %w", c.number, err)
+		}
+		files[figureFile(c.number)] = svg
+	}
 	for _, or := range r.Outcomes {
 		for _, f := range tableFiles(r, or) {
 			files[f.name] = f.data

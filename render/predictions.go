@@ -2,6 +2,8 @@ package render
 
 import (
 	"fmt"
+	"math"
+	"strconv"
 
 	"github.com/go-echarts/go-echarts/v2/charts"
 	"github.com/go-echarts/go-echarts/v2/opts"
@@ -83,12 +85,19 @@ func writePredictionPanel(d *doc, r *runner.Result, or *runner.OutcomeResult, fi
 	} else {
 		d.p("**Warning:** at %d of these %d values of `%s` the model predicts a negative probability for some category (its cumulative probabilities cross there). Those rows are not valid probability distributions; read the model with care in that region.", neg, len(xs), pf.focus)
 	}
-	c, err := predictionChart(d, or, pf, label)
+	level, z := confidence(r)
+	c, err := predictionChart(d, or, pf, label, level, z)
 	if err != nil {
 		d.p("The chart of these predictions was not drawn: %s.", err)
 		return
 	}
-	d.charts(fmt.Sprintf("Chart in report.html: predicted probability of each category against `%s`.", pf.focus), c)
+	cs := []*chart{c}
+	if !pf.binary {
+		if cc, err := cumulativeChart(d, or, pf, label); err == nil {
+			cs = append(cs, cc)
+		}
+	}
+	d.charts(fmt.Sprintf("Charts in report.html: predicted probability of each category against `%s`.", pf.focus), cs...)
 }
 
 var predictionGrid = opts.Grid{Left: "6%", Right: "8%", Top: "70", Bottom: "70"}
@@ -96,7 +105,7 @@ var predictionGrid = opts.Grid{Left: "6%", Right: "8%", Top: "70", Bottom: "70"}
 // predictionChart draws the predicted probabilities against the focus
 // predictor: stacked bars at 0 and 1 for a 0/1 predictor, else one line
 // per category over a finer grid than the table's.
-func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string) (*chart, error) {
+func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string, level, z float64) (*chart, error) {
 	res := or.Chosen.Result
 	xs := pf.grid(chartPoints)
 	pred, err := pf.predict(res, xs)
@@ -116,13 +125,20 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 		title += " (" + label + ")"
 		sub = or.Chosen.ID + "; " + label + ", other predictors at their means"
 	}
-	caption := fmt.Sprintf("Predicted probability of each category of %s under %s as %s varies, other predictors at their means.", or.Outcome.Column, or.Chosen.ID, pf.focus)
+	caption := fmt.Sprintf("Predicted probability of each category of %s under %s as %s varies, other predictors at their means", or.Outcome.Column, or.Chosen.ID, pf.focus)
 	if label != "" {
-		caption = fmt.Sprintf("Predicted probability of each category of %s under %s as %s varies, with %s, other predictors at their means.", or.Outcome.Column, or.Chosen.ID, pf.focus, label)
+		caption = fmt.Sprintf("Predicted probability of each category of %s under %s as %s varies, with %s, other predictors at their means", or.Outcome.Column, or.Chosen.ID, pf.focus, label)
+	}
+	band := pct(level) + " pointwise intervals (delta method)"
+	if pf.binary {
+		caption += "; each bar is the whole distribution at one value, split by category, lightest the lowest category."
+	} else {
+		caption += fmt.Sprintf("; shaded bands are %s, colours from light (lowest category) to dark (highest).", band)
 	}
 	if neg > 0 {
 		caption += fmt.Sprintf(" At %d of the %d points drawn some probability is negative.", neg, len(xs))
 	}
+	J := len(res.Levels)
 	probs := func(j int) []float64 {
 		out := make([]float64, len(xs))
 		for i := range xs {
@@ -130,9 +146,9 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 		}
 		return out
 	}
-	yAxis := opts.YAxis{Name: "probability", Type: "value"}
+	fig := newFigure(title, pf.focus, "probability")
+	fig.yMin = 0
 	if pf.binary {
-		caption += " Each bar is the whole distribution at one value, split by category."
 		b := charts.NewBar()
 		b.SetGlobalOptions(append(baseOpts(id, title, sub, 420, predictionGrid),
 			charts.WithXAxisOpts(opts.XAxis{Name: pf.focus, Type: "category"}),
@@ -142,25 +158,117 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 			labels = append(labels, pf.Label(x))
 		}
 		b.SetXAxis(labels)
+		fig.xNames, fig.yMax = labels, 1
+		bottom := make([]float64, len(xs))
 		for j, l := range res.Levels {
 			data := make([]opts.BarData, len(xs))
+			top := make([]float64, len(xs))
 			for i, p := range probs(j) {
 				data[i] = opts.BarData{Value: val(p)}
+				top[i] = bottom[i] + p
 			}
+			col := categoryColor(j, J)
 			b.AddSeries(l, data, charts.WithBarChartOpts(opts.BarChart{Stack: "probability", BarWidth: "40%"}),
-				charts.WithItemStyleOpts(opts.ItemStyle{Color: categoryColor(j, len(res.Levels))}))
+				charts.WithItemStyleOpts(opts.ItemStyle{Color: col}))
+			fig.series = append(fig.series, figSeries{name: l, color: col, lo: append([]float64(nil), bottom...), hi: top, alpha: 1, bars: true, legend: true})
+			bottom = top
 		}
-		return newChart(id, 420, caption, b), nil
+		return newChart(id, 420, caption, b).with(fig), nil
 	}
 	l := charts.NewLine()
 	l.SetGlobalOptions(append(baseOpts(id, title, sub, 420, predictionGrid),
-		charts.WithXAxisOpts(opts.XAxis{Name: pf.focus, Type: "value", Min: val(xs[0]), Max: val(xs[len(xs)-1]),
-			// The ends of the range are not round numbers: no labels there,
-			// so they do not crowd the nearest round tick.
-			AxisLabel: &opts.AxisLabel{ShowMinLabel: opts.Bool(false), ShowMaxLabel: opts.Bool(false)}}),
-		charts.WithYAxisOpts(yAxis))...)
+		charts.WithXAxisOpts(gridAxis(pf.focus)),
+		charts.WithYAxisOpts(opts.YAxis{Name: "probability", Type: "value", Min: 0}))...)
+	l.SetXAxis(gridLabels(xs))
 	for j, lv := range res.Levels {
-		l.AddSeries(lv, xyData(xs, probs(j)), lineStyle(categoryColor(j, len(res.Levels)), 2, false, false)...)
+		col := categoryColor(j, J)
+		p := probs(j)
+		lo, width := make([]float64, len(xs)), make([]float64, len(xs))
+		for i := range xs {
+			se := pred.SE[i*pred.J+j]
+			lo[i] = math.Max(0, p[i]-z*se)
+			width[i] = math.Min(1, p[i]+z*se) - lo[i]
+		}
+		// The band: an invisible line at the lower bound with the width
+		// stacked on it and filled. All three series carry the category's
+		// name, so its legend entry shows and hides line and band together.
+		stack := fmt.Sprintf("band-%d", j+1)
+		hidden := charts.WithLineStyleOpts(opts.LineStyle{Opacity: opts.Float(0)})
+		l.AddSeries(lv, lineData(lo), charts.WithLineChartOpts(opts.LineChart{Stack: stack, ShowSymbol: opts.Bool(false)}), hidden,
+			charts.WithItemStyleOpts(opts.ItemStyle{Color: col}))
+		l.AddSeries(lv, lineData(width), charts.WithLineChartOpts(opts.LineChart{Stack: stack, ShowSymbol: opts.Bool(false)}), hidden,
+			charts.WithAreaStyleOpts(opts.AreaStyle{Color: col, Opacity: opts.Float(0.18)}), charts.WithItemStyleOpts(opts.ItemStyle{Color: col}))
+		l.AddSeries(lv, lineData(p), lineStyle(col, 2, false, false)...)
+		hi := make([]float64, len(xs))
+		for i := range xs {
+			hi[i] = lo[i] + width[i]
+		}
+		fig.series = append(fig.series, figSeries{name: lv, color: col, lo: lo, hi: hi, alpha: 0.18},
+			figSeries{name: lv, color: col, xs: xs, ys: p, width: 2, legend: true})
 	}
-	return newChart(id, 420, caption, l), nil
+	for i := range fig.series {
+		if fig.series[i].lo != nil {
+			fig.series[i].xs = xs
+		}
+	}
+	return newChart(id, 420, caption, l).with(fig), nil
+}
+
+// cumulativeChart stacks the category probabilities over the focus
+// predictor: the upper edge of the layer of category m is P(y <= m).
+func cumulativeChart(d *doc, or *runner.OutcomeResult, pf *profile, label string) (*chart, error) {
+	res := or.Chosen.Result
+	xs := pf.grid(chartPoints)
+	pred, err := pf.predict(res, xs)
+	if err != nil {
+		return nil, err
+	}
+	id := d.chartID()
+	title := "Cumulative probabilities by " + pf.focus
+	sub := or.Chosen.ID + "; other predictors at their means"
+	if label != "" {
+		title += " (" + label + ")"
+		sub = or.Chosen.ID + "; " + label
+	}
+	caption := fmt.Sprintf("The category probabilities of %s stacked, lowest category at the bottom: the upper edge of each layer is the cumulative probability P(%s <= category) as %s varies.", or.Outcome.Column, or.Outcome.Column, pf.focus)
+	J := len(res.Levels)
+	l := charts.NewLine()
+	l.SetGlobalOptions(append(baseOpts(id, title, sub, 420, predictionGrid),
+		charts.WithXAxisOpts(gridAxis(pf.focus)),
+		charts.WithYAxisOpts(opts.YAxis{Name: "cumulative probability", Type: "value", Min: 0, Max: 1}))...)
+	l.SetXAxis(gridLabels(xs))
+	fig := newFigure(title, pf.focus, "cumulative probability")
+	fig.yMin, fig.yMax = 0, 1
+	bottom := make([]float64, len(xs))
+	for j, lv := range res.Levels {
+		col := categoryColor(j, J)
+		p := make([]float64, len(xs))
+		top := make([]float64, len(xs))
+		for i := range xs {
+			p[i] = pred.Prob[i*pred.J+j]
+			top[i] = bottom[i] + p[i]
+		}
+		l.AddSeries(lv, lineData(p), charts.WithLineChartOpts(opts.LineChart{Stack: "cumulative", ShowSymbol: opts.Bool(false)}),
+			charts.WithLineStyleOpts(opts.LineStyle{Color: col, Width: 1}),
+			charts.WithAreaStyleOpts(opts.AreaStyle{Color: col, Opacity: opts.Float(0.85)}), charts.WithItemStyleOpts(opts.ItemStyle{Color: col}))
+		fig.series = append(fig.series, figSeries{name: lv, color: col, xs: xs, lo: append([]float64(nil), bottom...), hi: top, alpha: 0.85, legend: true})
+		bottom = top
+	}
+	return newChart(id, 420, caption, l).with(fig), nil
+}
+
+// gridAxis is the x axis of the charts over the focus grid: a category
+// axis (so that the library stacks the bands point by point), whose
+// labels the library thins out to fit.
+func gridAxis(name string) opts.XAxis {
+	return opts.XAxis{Name: name, Type: "category", NameLocation: "middle", NameGap: 28}
+}
+
+// gridLabels writes the focus values with three significant digits.
+func gridLabels(xs []float64) []string {
+	out := make([]string, len(xs))
+	for i, x := range xs {
+		out[i] = strconv.FormatFloat(x, 'g', 3, 64)
+	}
+	return out
 }

@@ -63,7 +63,7 @@ func TestValAndColors(t *testing.T) {
 	for _, c := range []struct {
 		j, J int
 		want string
-	}{{0, 5, "#c0392b"}, {2, 5, "#b7950b"}, {4, 5, "#2471a3"}, {0, 2, "#c0392b"}, {1, 2, "#2471a3"}, {1, 3, "#b7950b"}} {
+	}{{0, 5, "#c9b24a"}, {2, 5, "#3e9a7a"}, {4, 5, "#2c2f6b"}, {0, 2, "#c9b24a"}, {1, 2, "#2c2f6b"}, {1, 3, "#3e9a7a"}} {
 		if got := categoryColor(c.j, c.J); got != c.want {
 			t.Errorf("categoryColor(%d, %d) = %s, want %s", c.j, c.J, got, c.want)
 		}
@@ -133,7 +133,7 @@ func TestPredictionsFlagNegativeProbabilities(t *testing.T) {
 		t.Errorf("no warning:\n%s", md)
 	}
 	cs := doc.allCharts()
-	if len(cs) != 1 || !strings.Contains(cs[0].caption, "some probability is negative") {
+	if len(cs) != 2 || !strings.Contains(cs[0].caption, "some probability is negative") {
 		t.Errorf("chart caption does not mention the negative probabilities: %+v", cs)
 	}
 }
@@ -175,10 +175,10 @@ func TestHTMLIsSelfContained(t *testing.T) {
 	if regexp.MustCompile(`<script[^>]*\ssrc=|<link\s`).MatchString(page) {
 		t.Error("the page loads a file")
 	}
-	groups := strings.Count(page, `<div class="chart-group">`)
-	notes := len(regexp.MustCompile(`(?m)^\*Charts? in report\.html: `).FindAllString(md, -1))
-	if groups != notes {
-		t.Errorf("%d chart groups in report.html, %d notes in report.md", groups, notes)
+	charts := strings.Count(page, `<div class="chart" id=`)
+	images := len(regexp.MustCompile(`(?m)^!\[Figure \d+\]\(figure-\d+\.svg\)$`).FindAllString(md, -1))
+	if charts != images {
+		t.Errorf("%d charts in report.html, %d figures in report.md", charts, images)
 	}
 	for _, h := range []string{"## Summary", "### The models", "### Tests of the parallel-lines assumption", "### Decision log",
 		"### Effects across boundaries", "### Predicted probabilities", "### Average marginal effects", "## Assumptions and limits"} {
@@ -199,5 +199,32 @@ func TestTimestampOnlyWhenAsked(t *testing.T) {
 	r.Started = ""
 	if strings.Contains(string(build(r, runner.BuildDecisions(r), nil).markdown()), "Run started") {
 		t.Fatal("timestamp without being asked")
+	}
+}
+
+// TestCategoryPaletteLightToDark: the colours of ordered categories get
+// darker (lower relative luminance) from the first category to the last.
+func TestCategoryPaletteLightToDark(t *testing.T) {
+	lum := func(hex string) float64 {
+		var r, g, b int
+		fmt.Sscanf(hex, "#%02x%02x%02x", &r, &g, &b)
+		lin := func(c int) float64 {
+			v := float64(c) / 255
+			if v <= 0.04045 {
+				return v / 12.92
+			}
+			return math.Pow((v+0.055)/1.055, 2.4)
+		}
+		return 0.2126*lin(r) + 0.7152*lin(g) + 0.0722*lin(b)
+	}
+	for J := 2; J <= 10; J++ {
+		prev := math.Inf(1)
+		for j := 0; j < J; j++ {
+			l := lum(categoryColor(j, J))
+			if l >= prev {
+				t.Errorf("J=%d: category %d (%s) is not darker than the one before", J, j+1, categoryColor(j, J))
+			}
+			prev = l
+		}
 	}
 }

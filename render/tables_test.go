@@ -4,13 +4,14 @@ import (
 	"bytes"
 	"encoding/csv"
 	"math"
+	"path/filepath"
+	"regexp"
 	"strconv"
 	"strings"
 	"testing"
 
 	"ordplan/plan"
 	"ordplan/runner"
-	"path/filepath"
 )
 
 // TestTableFiles: every table file of the golden run is CSV with one
@@ -67,5 +68,27 @@ func TestTableFiles(t *testing.T) {
 	}
 	if found != len(ch.Estimates) {
 		t.Errorf("%d estimates of the chosen model in the file, want %d", found, len(ch.Estimates))
+	}
+}
+
+// TestMarkdownFigures: every image report.md references is among the files
+// of the run, is an SVG document, and every chart of report.html has one.
+func TestMarkdownFigures(t *testing.T) {
+	files := runGolden(t, 2)
+	md := string(files["report.md"])
+	refs := regexp.MustCompile(`!\[[^\]]*\]\(([^)]+)\)`).FindAllStringSubmatch(md, -1)
+	charts := len(regexp.MustCompile(`<div class="chart" id="chart-`).FindAllString(string(files["report.html"]), -1))
+	if len(refs) == 0 || len(refs) != charts {
+		t.Errorf("report.md references %d figures, report.html has %d charts", len(refs), charts)
+	}
+	for _, m := range refs {
+		b, ok := files[m[1]]
+		if !ok {
+			t.Errorf("report.md references %s, which the run does not write", m[1])
+			continue
+		}
+		if !bytes.Contains(b[:min(len(b), 400)], []byte("<svg")) {
+			t.Errorf("%s is not an SVG document", m[1])
+		}
 	}
 }

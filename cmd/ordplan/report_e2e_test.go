@@ -53,7 +53,9 @@ var (
 // TestReportRendersInBrowser runs the example plan and opens report.html
 // in headless Chromium without a network: every chart must be drawn (its
 // element marked data-rendered="1" and holding a canvas) and the page
-// must report no script error.
+// must report no script error. Every chart has its export buttons (PNG
+// and SVG), the predicted probabilities have interval bands, and every
+// figure report.md shows exists beside it.
 func TestReportRendersInBrowser(t *testing.T) {
 	if testing.Short() {
 		t.Skip("browser test skipped in -short mode")
@@ -113,6 +115,30 @@ func TestReportRendersInBrowser(t *testing.T) {
 		if !strings.Contains(el, "<canvas") {
 			t.Errorf("%s: no canvas inside", id)
 		}
+		for _, kind := range []string{"png", "svg"} {
+			if !strings.Contains(el, `data-export="`+kind+`" data-chart="`+id+`"`) {
+				t.Errorf("%s: no %s export button", id, kind)
+			}
+		}
+	}
+	// The predicted-probability chart draws its intervals as bands: a
+	// filled series stacked on the lower bound.
+	if !bytes.Contains(src, []byte(`"stack":"band-1"`)) || !bytes.Contains(src, []byte(`"areaStyle"`)) {
+		t.Error("report.html: no interval band on the predicted-probability chart")
+	}
+	// report.md shows the same charts as image files beside it.
+	md, err := os.ReadFile(filepath.Join(out, "report.md"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	figs := regexp.MustCompile(`!\[[^\]]*\]\(([^)]+)\)`).FindAllSubmatch(md, -1)
+	if len(figs) != len(ids) {
+		t.Errorf("report.md shows %d figures, report.html %d charts", len(figs), len(ids))
+	}
+	for _, m := range figs {
+		if _, err := os.Stat(filepath.Join(out, string(m[1]))); err != nil {
+			t.Errorf("report.md: figure %s: %v", m[1], err)
+		}
 	}
 	m := errorsBox.FindStringSubmatch(dom)
 	if m == nil {
@@ -124,6 +150,26 @@ func TestReportRendersInBrowser(t *testing.T) {
 		if strings.Contains(line, ":CONSOLE") {
 			t.Errorf("browser console: %s", line)
 		}
+	}
+
+	// The export buttons work: a copy of the page exports the first chart
+	// as SVG and as PNG, the downloads caught into the page.
+	probe := string(src)
+	i := strings.LastIndex(probe, "</body>")
+	probe = probe[:i] + `<script>ordplanSave=function(u,n){var p=document.createElement("pre");p.className="exported";p.textContent=n+" "+u.slice(0,30);document.body.appendChild(p);};` +
+		`ordplanExport("` + ids[0] + `","svg");ordplanExport("` + ids[0] + `","png");</script>` + probe[i:]
+	probePage := filepath.Join(dir, "export.html")
+	if err := os.WriteFile(probePage, []byte(probe), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	pdom, _ := chromium(t, filepath.Join(dir, "profile2"), probePage, "--dump-dom")
+	for _, want := range []string{ids[0] + ".svg data:image/svg+xml", ids[0] + ".png data:image/png"} {
+		if !strings.Contains(pdom, want) {
+			t.Errorf("export: no %q in the page after exporting", want)
+		}
+	}
+	if m := errorsBox.FindStringSubmatch(pdom); m != nil && strings.TrimSpace(m[1]) != "" {
+		t.Errorf("export: script errors:\n%s", m[1])
 	}
 
 	f, err := os.Open(shot)
