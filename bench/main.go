@@ -166,7 +166,7 @@ func run(w io.Writer, cfg config) {
 				continue
 			}
 			ratio := "n/a"
-			if c.m.Level() == "parallel" || c.m.Level() == "nonparallel" {
+			if c.m.Structure() == fit.ParallelEffects || c.m.Structure() == fit.NonparallelEffects {
 				pr, err := fit.ProfileIteration(d, c.m, 2, 1)
 				if err == nil && pr.CrossProducts > 0 {
 					ratio = fmt.Sprintf("%.2f", float64(pr.Iteration)/float64(pr.CrossProducts))
@@ -248,7 +248,7 @@ func wide(w io.Writer, n, J int) {
 	d := generate(n, K, J, 9)
 	fmt.Fprintf(w, "\n## Wide design\n\nn = %d, K = %d.\n\n| model | params | seconds | Newton iterations | iteration / cross-products |\n|---|---|---|---|---|\n", n, K)
 	for _, c := range cells(K) {
-		if !strings.HasPrefix(c.name, "cumulative/") || (c.m.Level() != "parallel" && c.m.Level() != "nonparallel") {
+		if !strings.HasPrefix(c.name, "cumulative/") || (c.m.Structure() != fit.ParallelEffects && c.m.Structure() != fit.NonparallelEffects) {
 			continue
 		}
 		t0 := time.Now()

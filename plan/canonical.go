@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 
 	"ordplan/runner/design"
+	"ordplan/runner/fit"
 )
 
 // Canonical gives the resolved plan, defaults included, as indented JSON
@@ -38,7 +39,7 @@ type canonPlan struct {
 	Models      canonModels      `json:"models"`
 	Tests       canonTests       `json:"tests"`
 	Rules       []map[string]any `json:"rules"`
-	Covariance  string           `json:"covariance"`
+	Covariance  fit.Covariance   `json:"covariance"`
 	Report      canonReport      `json:"report"`
 	Inference   canonInference   `json:"inference"`
 	Dictionary  map[string]any   `json:"dictionary,omitempty"`
@@ -63,11 +64,11 @@ type canonOutcome struct {
 }
 
 type canonModels struct {
-	Approaches []string      `json:"approaches"`
-	Direction  *string       `json:"direction,omitempty"`
-	Levels     []string      `json:"levels"`
-	Links      []string      `json:"links"`
-	Partial    *canonPartial `json:"partial,omitempty"`
+	Approaches []fit.Comparison `json:"approaches"`
+	Direction  *string          `json:"direction,omitempty"`
+	Effects    []fit.Structure  `json:"effects"`
+	Links      []fit.Link       `json:"links"`
+	Partial    *canonPartial    `json:"partial,omitempty"`
 }
 
 type canonPartial struct {
@@ -77,9 +78,9 @@ type canonPartial struct {
 }
 
 type canonSelect struct {
-	Method string  `json:"method"`
-	Alpha  float64 `json:"alpha"`
-	Test   string  `json:"test"`
+	Method string       `json:"method"`
+	Alpha  float64      `json:"alpha"`
+	Test   fit.TestKind `json:"test"`
 }
 
 type canonGroup struct {
@@ -88,8 +89,8 @@ type canonGroup struct {
 }
 
 type canonTests struct {
-	ParallelLines []string `json:"parallel_lines"`
-	Alpha         float64  `json:"alpha"`
+	ParallelLines []fit.TestKind `json:"parallel_lines"`
+	Alpha         float64        `json:"alpha"`
 }
 
 type canonReport struct {
@@ -107,9 +108,11 @@ func optional(s string) *string {
 	return &s
 }
 
-func nonNil(s []string) []string {
+func nonNil(s []string) []string { return nonNilOf(s) }
+
+func nonNilOf[T any](s []T) []T {
 	if s == nil {
-		return []string{}
+		return []T{}
 	}
 	return s
 }
@@ -130,11 +133,11 @@ func (p *Plan) canonical() canonPlan {
 			Cluster:       optional(p.Data.Cluster),
 		},
 		Models: canonModels{
-			Approaches: nonNil(p.Models.Approaches),
-			Levels:     nonNil(p.Models.Levels),
-			Links:      nonNil(p.Models.Links),
+			Approaches: nonNilOf(p.Models.Approaches),
+			Effects:    nonNilOf(p.Models.Effects),
+			Links:      nonNilOf(p.Models.Links),
 		},
-		Tests: canonTests{ParallelLines: nonNil(p.Tests.ParallelLines), Alpha: p.Tests.Alpha},
+		Tests: canonTests{ParallelLines: nonNilOf(p.Tests.ParallelLines), Alpha: p.Tests.Alpha},
 		Report: canonReport{
 			Title:           p.Report.Title,
 			FocusPredictor:  p.Report.FocusPredictor,
@@ -151,15 +154,15 @@ func (p *Plan) canonical() canonPlan {
 	if p.Data.Weights != "" {
 		c.Data.WeightKind = optional(p.Data.WeightKind)
 	}
-	if p.Models.HasApproach("stage") {
+	if p.Models.HasApproach(fit.Stage) {
 		c.Models.Direction = optional(p.Models.Direction)
 	}
-	if p.Models.HasLevel("partial") || p.Models.HasLevel("constrained") {
+	if p.Models.HasEffects(fit.PartialEffects) || p.Models.HasEffects(fit.ConstrainedEffects) {
 		pa := &canonPartial{Free: p.Models.Partial.Free}
 		if s := p.Models.Partial.Select; s != nil {
 			pa.Select = &canonSelect{Method: s.Method, Alpha: s.Alpha, Test: s.Test}
 		}
-		if p.Models.HasLevel("constrained") {
+		if p.Models.HasEffects(fit.ConstrainedEffects) {
 			for _, g := range p.Models.Partial.Groups {
 				pa.Groups = append(pa.Groups, canonGroup{Name: g.Name, Predictors: nonNil(g.Predictors)})
 			}
@@ -202,9 +205,9 @@ func canonRule(r Rule) map[string]any {
 	var opts any = true
 	switch r.Kind {
 	case RuleRejectIfTestRejects:
-		o := map[string]any{"test": r.Test, "alpha": r.Alpha, "against": r.Against}
+		o := map[string]any{"test": r.Test.String(), "alpha": r.Alpha, "against": r.Against}
 		if r.AppliesTo != nil {
-			o["applies_to"] = r.AppliesTo
+			o["applies_to"] = names(r.AppliesTo)
 		}
 		opts = o
 	case RuleChoose, RulePreferSimpler:

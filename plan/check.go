@@ -5,6 +5,8 @@ import (
 	"strings"
 
 	"gopkg.in/yaml.v3"
+
+	"ordplan/runner/fit"
 )
 
 // check runs the checks that involve more than one key.
@@ -121,14 +123,14 @@ func (d *decoder) checkColumns(p *Plan) {
 
 // checkDataOptions checks weights and clustering against covariance.
 func (d *decoder) checkDataOptions(p *Plan) {
-	if p.Data.WeightKind == "probability" && p.Data.Weights == "" && d.clean("data.weights") {
-		d.errAt("data.weight_kind", "probability weights need a weights column, and data.weights is not set")
+	if p.Data.WeightKind == "sampling" && p.Data.Weights == "" && d.clean("data.weights") {
+		d.errAt("data.weight_kind", "sampling weights need a weights column, and data.weights is not set")
 	}
-	if p.Covariance == "cluster" && p.Data.Cluster == "" && d.clean("data.cluster") {
-		d.errAt("covariance", "cluster covariance needs a cluster column, and data.cluster is not set")
+	if p.Covariance == fit.Clustered && p.Data.Cluster == "" && d.clean("data.cluster") {
+		d.errAt("covariance", "clustered covariance needs a cluster column, and data.cluster is not set")
 	}
-	if p.Data.Cluster != "" && p.Covariance != "cluster" && d.clean("covariance") {
-		d.errAt("data.cluster", "the cluster column is used only with covariance: cluster (covariance is %s); set covariance: cluster or remove data.cluster", quote(p.Covariance))
+	if p.Data.Cluster != "" && p.Covariance != fit.Clustered && d.clean("covariance") {
+		d.errAt("data.cluster", "the cluster column is used only with covariance: clustered (covariance is %s); set covariance: clustered or remove data.cluster", quote(p.Covariance.String()))
 	}
 }
 

@@ -29,7 +29,7 @@ data:
 outcomes:
   - column: y
 predictors: [a, b]
-models: {levels: [parallel, nonparallel]}
+models: {effects: [parallel, nonparallel]}
 rules:
   - choose: {by: aic}
 `
@@ -46,7 +46,7 @@ rules:
 			[]string{`p.yaml:5:13: outcomes[0].column: column "score" is not in the data file d.csv`}},
 		{"second outcome absent", "  - column: y\n", "  - column: y\n  - column: z\n",
 			[]string{`p.yaml:6:13: outcomes[1].column: column "z" is not in the data file d.csv`}},
-		{"absent weights, offset and cluster", "  file: d.csv\n", "  file: d.csv\n  weights: wt\n  offset: of\n  cluster: GRP\ncovariance: cluster\n",
+		{"absent weights, offset and cluster", "  file: d.csv\n", "  file: d.csv\n  weights: wt\n  offset: of\n  cluster: GRP\ncovariance: clustered\n",
 			[]string{
 				`p.yaml:4:12: data.weights: column "wt" is not in the data file d.csv`,
 				`p.yaml:5:11: data.offset: column "of" is not in the data file d.csv`,

@@ -1,6 +1,10 @@
 package plan
 
-import "slices"
+import (
+	"slices"
+
+	"ordplan/runner/fit"
+)
 
 // checkApproaches checks settings that need a particular approach.
 func (d *decoder) checkApproaches(p *Plan) {
@@ -8,15 +12,15 @@ func (d *decoder) checkApproaches(p *Plan) {
 	if !d.clean("models.approaches") {
 		return
 	}
-	if mo.HasLevel("stereotype") && !mo.HasApproach("adjacent") {
-		d.errAt(d.itemKey("models.levels", "stereotype"), "the stereotype level needs the adjacent approach, and models.approaches does not include adjacent")
+	if mo.HasEffects(fit.StereotypeEffects) && !mo.HasApproach(fit.Adjacent) {
+		d.errAt(d.itemKey("models.effects", "stereotype"), "the stereotype effect structure needs the adjacent approach, and models.approaches does not include adjacent")
 	}
-	if d.given("models.direction") && !mo.HasApproach("stage") {
+	if d.given("models.direction") && !mo.HasApproach(fit.Stage) {
 		d.errAt("models.direction", "only the stage approach has a direction, and models.approaches does not include stage")
 	}
 }
 
-// checkPartial checks that the partial set exists exactly when a level
+// checkPartial checks that the partial set exists exactly when an effect structure
 // uses it, and names real predictors.
 func (d *decoder) checkPartial(p *Plan) {
 	mo := p.Models
@@ -25,23 +29,23 @@ func (d *decoder) checkPartial(p *Plan) {
 	hasSelect := d.given("models.partial.select")
 	hasGroups := d.given("models.partial.groups")
 	var users []string
-	for _, l := range []string{"partial", "constrained"} {
-		if mo.HasLevel(l) {
-			users = append(users, l)
+	for _, s := range []fit.Structure{fit.PartialEffects, fit.ConstrainedEffects} {
+		if mo.HasEffects(s) {
+			users = append(users, s.String())
 		}
 	}
-	if d.clean("models.levels") {
+	if d.clean("models.effects") {
 		switch {
 		case len(users) > 0 && !hasFree && !hasSelect && d.clean("models.partial"):
-			what := "level " + quote(users[0]) + " needs"
+			what := "effect structure " + quote(users[0]) + " needs"
 			if len(users) == 2 {
-				what = "levels " + quote(users[0]) + " and " + quote(users[1]) + " need"
+				what = "effect structures " + quote(users[0]) + " and " + quote(users[1]) + " need"
 			}
 			d.errAt("models.partial", "%s a partial set: give models.partial.free (a list of predictors) or models.partial.select", what)
 		case len(users) == 0 && (hasFree || hasSelect || hasGroups):
-			d.errAt("models.partial", "is unused, because models.levels includes neither partial nor constrained")
-		case hasGroups && !mo.HasLevel("constrained"):
-			d.errAt("models.partial.groups", "groups are used only by the constrained level, which models.levels does not include")
+			d.errAt("models.partial", "is unused, because models.effects includes neither partial nor constrained")
+		case hasGroups && !mo.HasEffects(fit.ConstrainedEffects):
+			d.errAt("models.partial.groups", "groups are used only by the constrained effect structure, which models.effects does not include")
 		}
 	}
 	if hasFree && hasSelect {

@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"slices"
 	"strings"
+
+	"ordplan/runner/fit"
 )
 
 // checkRules checks the order of the rules and that each one can do what
@@ -36,7 +38,7 @@ func (d *decoder) checkRules(p *Plan) {
 		}
 	}
 
-	modelsOK := d.clean("models.approaches") && d.clean("models.levels") && d.clean("models.links")
+	modelsOK := d.clean("models.approaches") && d.clean("models.effects") && d.clean("models.links")
 	seen := map[string]int{}
 	for i, r := range p.Rules {
 		ip := itemPath("rules", i)
@@ -52,7 +54,7 @@ func (d *decoder) checkRules(p *Plan) {
 		at := ip + "." + r.Kind
 		switch r.Kind {
 		case RuleRejectNegativeProbabilities:
-			if d.clean("models.approaches") && !p.Models.HasApproach("cumulative") {
+			if d.clean("models.approaches") && !p.Models.HasApproach(fit.Cumulative) {
 				d.errAt(at, "applies only to cumulative fits, and models.approaches does not include cumulative")
 			}
 		case RuleRejectIfTestRejects:
@@ -61,7 +63,7 @@ func (d *decoder) checkRules(p *Plan) {
 			}
 		case RuleRejectIfSimplerIsClose:
 			if modelsOK && !hasNesting(p) {
-				d.errAt(at, "compares each model with a simpler one of the same approach and link, but models.levels (%s) has no such pair", strings.Join(p.Models.Levels, ", "))
+				d.errAt(at, "compares each model with a simpler one of the same approach and link, but models.effects (%s) has no such pair", joinWords(p.Models.Effects))
 			}
 			if d.predictorsKnown(p) {
 				for _, ax := range r.Grid {
@@ -83,8 +85,8 @@ func (d *decoder) checkRules(p *Plan) {
 				}
 			}
 		case RuleRejectIfUnstable:
-			if r.MaxCondition == 0 && d.clean("models.levels") && !p.Models.HasLevel("constrained") && !p.Models.HasLevel("stereotype") {
-				d.errAt(at+".min_starts_agreeing", "applies only to constrained and stereotype models (searched from several starts), and models.levels includes neither")
+			if r.MaxCondition == 0 && d.clean("models.effects") && !p.Models.HasEffects(fit.ConstrainedEffects) && !p.Models.HasEffects(fit.StereotypeEffects) {
+				d.errAt(at+".min_starts_agreeing", "applies only to constrained and stereotype models (searched from several starts), and models.effects includes neither")
 			}
 		case RuleChoose, RulePreferSimpler:
 			d.checkFinalRule(p, r, at)
@@ -97,9 +99,9 @@ func (d *decoder) checkRules(p *Plan) {
 func (d *decoder) checkTestRule(p *Plan, r Rule, at string) {
 	pairs := p.TestPairs(r)
 	if len(pairs) == 0 {
-		what := "models.levels (" + strings.Join(p.Models.Levels, ", ") + ")"
+		what := "models.effects (" + joinWords(p.Models.Effects) + ")"
 		if r.AppliesTo != nil {
-			what += " with applies_to (" + strings.Join(r.AppliesTo, ", ") + ")"
+			what += " with applies_to (" + joinWords(r.AppliesTo) + ")"
 		}
 		d.errAt(at, "tests each model against a less constrained one, but %s gives no such pair", what)
 		return
@@ -122,18 +124,18 @@ func (d *decoder) checkTestRule(p *Plan, r Rule, at string) {
 	hint := ""
 	switch {
 	case p.Data.Sampling():
-	case r.Test == "brant":
+	case r.Test == fit.TestBrant:
 		hint = "; use test: lr, or keep the Brant rule to a plan of cumulative logit models with applies_to: [parallel]"
 	default:
 		hint = "; use test: lr, or leave constrained and stereotype models out of the rule with applies_to"
 	}
 	d.errAt(key, "the %s test is not defined for %d of the %d comparisons this rule makes (%s): %s; %s%s",
-		TestName(r.Test), len(bad), len(pairs), r.Against, strings.Join(bad, ", "), why, hint)
+		r.Test.Title(), len(bad), len(pairs), r.Against, strings.Join(bad, ", "), why, hint)
 }
 
 func hasNesting(p *Plan) bool {
 	for _, a := range p.Models.Approaches {
-		for _, e := range p.Models.Levels {
+		for _, e := range p.Models.Effects {
 			if !p.Models.EffectsFitted(a, e) {
 				continue
 			}
@@ -155,28 +157,30 @@ func (d *decoder) checkFinalRule(p *Plan, r Rule, at string) {
 		if d.given(at + ".by") {
 			key, dflt = at+".by", ""
 		}
-		d.errAt(key, "by: %s%s assumes a likelihood, but with sampling weights (data.weight_kind: probability) the fits maximize a pseudo-likelihood; use by: tic, whose penalty is valid for pseudo-likelihoods", r.By, dflt)
+		d.errAt(key, "by: %s%s assumes a likelihood, but with sampling weights (data.weight_kind: sampling) the fits maximize a pseudo-likelihood; use by: tic, whose penalty is valid for pseudo-likelihoods", r.By, dflt)
 	}
 	if r.Otherwise == OtherwiseStop || !d.clean("models") {
 		return
 	}
 	key := at + ".otherwise"
-	a, e, l, ok := ParseModelID(r.Otherwise)
+	aw, ew, lw, ok := ParseModelID(r.Otherwise)
 	if !ok {
 		d.errAt(key, "want stop or a model of the plan written approach/effects/link, such as cumulative/parallel/logit; got %s", quote(r.Otherwise))
 		return
 	}
 	var probs []string
-	if !p.Models.HasApproach(a) {
-		probs = append(probs, fmt.Sprintf("approach %s is not in models.approaches", quote(a)))
+	a, aerr := fit.ComparisonWords.Parse(aw)
+	if aerr != nil || !p.Models.HasApproach(a) {
+		probs = append(probs, fmt.Sprintf("approach %s is not in models.approaches", quote(aw)))
 	}
-	if !p.Models.HasLevel(e) {
-		probs = append(probs, fmt.Sprintf("effects %s are not in models.levels", quote(e)))
-	} else if !p.Models.EffectsFitted(a, e) {
+	e, eerr := fit.StructureWords.Parse(ew)
+	if eerr != nil || !p.Models.HasEffects(e) {
+		probs = append(probs, fmt.Sprintf("effects %s are not in models.effects", quote(ew)))
+	} else if aerr == nil && !p.Models.EffectsFitted(a, e) {
 		probs = append(probs, "stereotype effects exist only for the adjacent approach")
 	}
-	if !slices.Contains(p.Models.Links, l) {
-		probs = append(probs, fmt.Sprintf("link %s is not in models.links", quote(l)))
+	if l, err := fit.LinkWords.Parse(lw); err != nil || !slices.Contains(p.Models.Links, l) {
+		probs = append(probs, fmt.Sprintf("link %s is not in models.links", quote(lw)))
 	}
 	if len(probs) > 0 {
 		d.errAt(key, "the fallback %s is not a model of the plan: %s", r.Otherwise, strings.Join(probs, "; "))

@@ -1,18 +1,24 @@
 package plan
 
-import "gopkg.in/yaml.v3"
+import (
+	"slices"
+
+	"gopkg.in/yaml.v3"
+
+	"ordplan/runner/fit"
+)
 
 // decodeModels reads the models section.
 func (d *decoder) decodeModels(n *yaml.Node, mo *Models) {
-	mo.Approaches = append([]string(nil), defaultApproaches...)
+	mo.Approaches = slices.Clone(defaultApproaches)
 	mo.Direction = "forward"
-	mo.Levels = append([]string(nil), defaultLevels...)
-	mo.Links = append([]string(nil), defaultLinks...)
+	mo.Effects = slices.Clone(defaultEffects)
+	mo.Links = slices.Clone(defaultLinks)
 	m := d.mapping(n, "models", modelsKeys)
-	m.words("approaches", "approach", approachWords, false, &mo.Approaches)
+	typedWords(m, "approaches", "approach", fit.ComparisonWords, fit.ComparisonWords.All(), false, &mo.Approaches)
 	m.word("direction", "direction", directionWords, &mo.Direction)
-	m.words("levels", "level", levelWords, false, &mo.Levels)
-	m.words("links", "link", linkWords, false, &mo.Links)
+	typedWords(m, "effects", "effect structure", fit.StructureWords, fit.StructureWords.All(), false, &mo.Effects)
+	typedWords(m, "links", "link", fit.LinkWords, fit.LinkWords.All(), false, &mo.Links)
 	d.decodePartial(m.get("partial"), &mo.Partial)
 }
 
@@ -33,14 +39,14 @@ func (d *decoder) decodePartial(n *yaml.Node, pa *Partial) {
 }
 
 func (d *decoder) decodeSelect(n *yaml.Node, path string) *Select {
-	s := &Select{Method: "stepwise", Alpha: 0.05, Test: "wald"}
+	s := &Select{Method: "stepwise", Alpha: 0.05, Test: fit.TestWald}
 	m := d.mapping(n, path, selectKeys)
 	if m == nil {
 		return nil
 	}
 	m.word("method", "selection method", selectMethodWords, &s.Method)
 	m.probability("alpha", &s.Alpha)
-	m.word("test", "selection test", selectTestWords, &s.Test)
+	typedWord(m, "test", "selection test", fit.TestWords, selectTests, &s.Test)
 	return s
 }
 

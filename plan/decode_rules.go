@@ -5,6 +5,8 @@ import (
 	"strings"
 
 	"gopkg.in/yaml.v3"
+
+	"ordplan/runner/fit"
 )
 
 // decodeRules reads the rules list. Every item gives one Rule, so indexes
@@ -56,15 +58,15 @@ func (d *decoder) decodeRule(n *yaml.Node, path string) Rule {
 			return r
 		}
 	case RuleRejectIfTestRejects:
-		r.Test, r.Against = "lr", AgainstLeast
+		r.Test, r.Against = fit.TestLR, AgainstLeast
 		m, ok := d.ruleOptions(v, p, rejectKeys)
 		if !ok {
 			return r
 		}
-		m.word("test", "test", ruleTestWords, &r.Test)
+		typedWord(m, "test", "test", fit.TestWords, ruleTests, &r.Test)
 		m.probability("alpha", &r.Alpha) // 0 = tests.alpha, set in applyDefaults
 		m.word("against", "comparison", againstWords, &r.Against)
-		m.words("applies_to", "effect structure", levelWords, false, &r.AppliesTo)
+		typedWords(m, "applies_to", "effect structure", fit.StructureWords, fit.StructureWords.All(), false, &r.AppliesTo)
 	case RuleChoose, RulePreferSimpler:
 		r.By, r.Otherwise = "bic", OtherwiseStop
 		if kind == RulePreferSimpler {

@@ -1,13 +1,19 @@
 package plan
 
-import "gopkg.in/yaml.v3"
+import (
+	"slices"
+
+	"gopkg.in/yaml.v3"
+
+	"ordplan/runner/fit"
+)
 
 // decodeTests reads the tests section.
 func (d *decoder) decodeTests(n *yaml.Node, t *Tests) {
-	t.ParallelLines = append([]string(nil), defaultParallelLines...)
+	t.ParallelLines = slices.Clone(defaultParallelLines)
 	t.Alpha = 0.05
 	m := d.mapping(n, "tests", testsKeys)
-	m.words("parallel_lines", "parallel-lines test", parallelTestWords, true, &t.ParallelLines)
+	typedWords(m, "parallel_lines", "parallel-lines test", fit.TestWords, parallelTests, true, &t.ParallelLines)
 	m.probability("alpha", &t.Alpha)
 }
 

@@ -1,5 +1,7 @@
 package plan
 
+import "ordplan/runner/fit"
+
 // applyDefaults fills in the defaults that depend on more than one
 // section. Simple defaults are set while decoding.
 func (d *decoder) applyDefaults(p *Plan) {
@@ -24,7 +26,7 @@ func (d *decoder) applyDefaults(p *Plan) {
 		}
 	}
 	pa := &p.Models.Partial
-	if p.Models.HasLevel("constrained") && pa.Free != nil && !d.given("models.partial.groups") {
+	if p.Models.HasEffects(fit.ConstrainedEffects) && pa.Free != nil && !d.given("models.partial.groups") {
 		pa.Groups = []Group{{Name: "", Predictors: append([]string(nil), pa.Free...)}}
 	}
 }

@@ -21,11 +21,12 @@ type Inference struct {
 	Multiplicity string
 	// MarginalEffects lists the kinds of marginal effects reported for the
 	// chosen model: average (over the rows), means (at the means of the
-	// predictors), values (at the values in At). Default [average].
+	// predictors), profile (at the predictor values of Profile). Default
+	// [average].
 	MarginalEffects []string
-	// At gives predictor values for marginal effects "values"; predictors
-	// not listed are held at their means.
-	At []AtValue
+	// Profile gives predictor values for marginal effects "profile";
+	// predictors not listed are held at their means.
+	Profile []ProfileValue
 	// Predict names a CSV file of new rows (predictor columns) whose
 	// predictions by the chosen model are written to predictions.csv.
 	Predict     string
@@ -45,16 +46,17 @@ type Hypothesis struct {
 	Line int
 }
 
-// AtValue is one predictor value for marginal effects at given values.
-type AtValue struct {
+// ProfileValue is one predictor value of the profile at which marginal
+// effects "profile" are computed.
+type ProfileValue struct {
 	Predictor string  // a column the terms read
 	Value     float64 // numeric columns
 	Level     string  // categorical columns: the level
 }
 
 var (
-	inferenceKeys       = []string{"hypotheses", "multiplicity", "marginal_effects", "at", "predict"}
-	marginalEffectWords = []string{"average", "means", "values"}
+	inferenceKeys       = []string{"hypotheses", "multiplicity", "marginal_effects", "profile", "predict"}
+	marginalEffectWords = []string{"average", "means", "profile"}
 	multiplicityWords   = []string{MultiplicityNone, MultiplicityHolm, MultiplicityBH}
 )
 
@@ -81,24 +83,24 @@ func (d *decoder) decodeInference(n *yaml.Node, inf *Inference, dir string) {
 		}
 	}
 	m.words("marginal_effects", "marginal effect", marginalEffectWords, true, &inf.MarginalEffects)
-	if v := m.get("at"); v != nil {
+	if v := m.get("profile"); v != nil {
 		an := deref(v)
 		if an.Kind != yaml.MappingNode {
-			d.errorf(an, m.at("at"), "want a mapping of predictor: value, got %s", describe(an))
+			d.errorf(an, m.at("profile"), "want a mapping of predictor: value, got %s", describe(an))
 		} else {
 			seen := map[string]bool{}
 			for i := 0; i+1 < len(an.Content); i += 2 {
 				k, val := deref(an.Content[i]), an.Content[i+1]
-				path := childPath(m.at("at"), k.Value)
+				path := childPath(m.at("profile"), k.Value)
 				if seen[k.Value] {
 					d.errorf(k, path, "predictor is given twice")
 					continue
 				}
 				seen[k.Value] = true
 				if dv := deref(d.record(path, val)); dv != nil && dv.Kind == yaml.ScalarNode && dv.ShortTag() == "!!str" {
-					inf.At = append(inf.At, AtValue{Predictor: k.Value, Level: dv.Value})
+					inf.Profile = append(inf.Profile, ProfileValue{Predictor: k.Value, Level: dv.Value})
 				} else if x, ok := d.number(dv, path); ok {
-					inf.At = append(inf.At, AtValue{Predictor: k.Value, Value: x})
+					inf.Profile = append(inf.Profile, ProfileValue{Predictor: k.Value, Value: x})
 				}
 			}
 		}
@@ -117,8 +119,8 @@ func (d *decoder) decodeInference(n *yaml.Node, inf *Inference, dir string) {
 // checkInference checks the section against the predictors.
 func (d *decoder) checkInference(p *Plan) {
 	inf := &p.Inference
-	for _, a := range inf.At {
-		key := childPath("inference.at", a.Predictor)
+	for _, a := range inf.Profile {
+		key := childPath("inference.profile", a.Predictor)
 		c := p.categorical(a.Predictor)
 		switch {
 		case !slices.Contains(p.SourceColumns(), a.Predictor):
@@ -129,12 +131,12 @@ func (d *decoder) checkInference(p *Plan) {
 			d.errAt(key, "%s is numeric: give a number, got %s", quote(a.Predictor), quote(a.Level))
 		}
 	}
-	hasValues := slices.Contains(inf.MarginalEffects, "values")
-	if hasValues && len(inf.At) == 0 {
-		d.errAt("inference.marginal_effects", "marginal effects at values need inference.at (predictor: value, ...)")
+	hasProfile := slices.Contains(inf.MarginalEffects, "profile")
+	if hasProfile && len(inf.Profile) == 0 {
+		d.errAt("inference.marginal_effects", "marginal effects at a profile need inference.profile (predictor: value, ...)")
 	}
-	if !hasValues && len(inf.At) > 0 {
-		d.errAt("inference.at", "inference.at is used only with marginal_effects: [values]; add values or remove at")
+	if !hasProfile && len(inf.Profile) > 0 {
+		d.errAt("inference.profile", "inference.profile is used only with marginal_effects: [profile]; add profile there or remove inference.profile")
 	}
 }
 
@@ -143,7 +145,7 @@ type canonInference struct {
 	Hypotheses      []string       `json:"hypotheses"`
 	Multiplicity    string         `json:"multiplicity"`
 	MarginalEffects []string       `json:"marginal_effects"`
-	At              map[string]any `json:"at,omitempty"`
+	Profile         map[string]any `json:"profile,omitempty"`
 	Predict         *string        `json:"predict"`
 }
 
@@ -152,12 +154,12 @@ func (inf *Inference) canonical() canonInference {
 	for _, h := range inf.Hypotheses {
 		c.Hypotheses = append(c.Hypotheses, h.Text)
 	}
-	if len(inf.At) > 0 {
-		c.At = map[string]any{}
-		for _, a := range inf.At {
-			c.At[a.Predictor] = a.Value
+	if len(inf.Profile) > 0 {
+		c.Profile = map[string]any{}
+		for _, a := range inf.Profile {
+			c.Profile[a.Predictor] = a.Value
 			if a.Level != "" {
-				c.At[a.Predictor] = a.Level
+				c.Profile[a.Predictor] = a.Level
 			}
 		}
 	}

@@ -131,16 +131,19 @@ func (m *mapping) boolean(key string, dst *bool) {
 
 // words reads a list of allowed words; an empty list is reported unless
 // emptyOK. Bad items are dropped; if none is left *dst keeps its default.
-func (m *mapping) words(key, what string, words []string, emptyOK bool, dst *[]string) {
+// It reports whether *dst was set.
+func (m *mapping) words(key, what string, words []string, emptyOK bool, dst *[]string) bool {
 	v := m.get(key)
 	if v == nil {
-		return
+		return false
 	}
 	if !emptyOK && !m.d.nonEmpty(v, m.at(key), what) {
-		return
+		return false
 	}
 	list, ok := m.d.words(v, m.at(key), what, words)
 	if ok && (len(list) > 0 || emptyOK && m.d.clean(m.at(key))) {
 		*dst = list
+		return true
 	}
+	return false
 }

@@ -13,6 +13,8 @@ import (
 	"strconv"
 
 	"gopkg.in/yaml.v3"
+
+	"ordplan/runner/fit"
 )
 
 // Load reads the plan file at path, checks it and applies defaults. Unlike
@@ -104,7 +106,6 @@ func syntaxError(path string, err error) *Error {
 func (d *decoder) decodePlan(root *yaml.Node, p *Plan) {
 	d.record("", root)
 	p.Seed = 1
-	p.Covariance = "oim"
 	m := d.mapping(root, "", topKeys)
 	if m == nil {
 		return
@@ -142,7 +143,7 @@ func (d *decoder) decodePlan(root *yaml.Node, p *Plan) {
 	if v := m.required("rules"); v != nil {
 		p.Rules = d.decodeRules(v)
 	}
-	m.word("covariance", "covariance", covarianceWords, &p.Covariance)
+	typedWord(m, "covariance", "covariance", fit.CovarianceWords, fit.CovarianceWords.All(), &p.Covariance)
 	d.decodeReport(m.get("report"), &p.Report)
 	d.decodeInference(m.get("inference"), &p.Inference, p.Dir)
 	if v := m.get("dictionary"); v != nil {

@@ -5,6 +5,7 @@ import (
 
 	"ordplan/runner/data"
 	"ordplan/runner/design"
+	"ordplan/runner/fit"
 )
 
 // Plan is a resolved analysis plan.
@@ -29,7 +30,7 @@ type Plan struct {
 	Tests       Tests
 	Rules       []Rule
 	Report      Report
-	Covariance  string // "oim" (default), "eim", "robust", "cluster"
+	Covariance  fit.Covariance // default observed
 	Inference   Inference
 	Assumptions *Assumptions // expected data, for rehearse and power (optional)
 	Dictionary  []Entry      // what each used column holds (optional; when given, every used column)
@@ -43,7 +44,7 @@ type Data struct {
 	Missing       string   // "drop" (default) or "refuse"
 	MissingValues []string // nil = reader default; empty = nothing counts as missing
 	Weights       string   // column, optional
-	WeightKind    string   // "frequency" (default) or "probability"
+	WeightKind    string   // "frequency" (default) or "sampling"
 	Offset        string   // column, optional
 	Cluster       string   // column, optional
 }
@@ -61,15 +62,15 @@ type Outcome struct {
 
 // Models describes the grid of models to fit.
 type Models struct {
-	Approaches []string // subset of cumulative, stage, adjacent; default all three
-	Direction  string   // stage direction: forward (default) | backward
-	Levels     []string // subset of parallel, partial, constrained, nonparallel, stereotype
-	Links      []string // default [logit]
+	Approaches []fit.Comparison // default all three
+	Direction  string           // stage direction: forward (default) | backward
+	Effects    []fit.Structure  // effect structures; default all but stereotype
+	Links      []fit.Link       // default [logit]
 	Partial    Partial
 }
 
 // Partial says which predictors leave the parallel structure in the
-// partial and constrained levels.
+// partial and constrained effect structures.
 type Partial struct {
 	Free   []string // predictors made nonparallel (partial) or constrained (constrained)
 	Select *Select  // or chosen by stepwise selection
@@ -78,9 +79,9 @@ type Partial struct {
 
 // Select configures stepwise selection of the partial set.
 type Select struct {
-	Method string  // "stepwise"
-	Alpha  float64 // default 0.05, 0 < Alpha < 1
-	Test   string  // "wald" (default) | "lr"
+	Method string       // "stepwise"
+	Alpha  float64      // default 0.05, 0 < Alpha < 1
+	Test   fit.TestKind // wald (default) or lr
 }
 
 // Group is a named set of constrained predictors sharing one factor.
@@ -91,8 +92,8 @@ type Group struct {
 
 // Tests lists the parallel-lines tests to run.
 type Tests struct {
-	ParallelLines []string // subset of brant, lr, score, wald, wolfe_gould
-	Alpha         float64  // default 0.05
+	ParallelLines []fit.TestKind // default brant, lr, score, wald
+	Alpha         float64        // default 0.05
 }
 
 // Rule is one step of model selection, applied in plan order. Each kind
@@ -102,10 +103,10 @@ type Rule struct {
 	Kind string // one of the Rule* kinds
 
 	// reject_if_test_rejects
-	Test      string   // lr | wald | score | brant (default lr)
-	Alpha     float64  // default Tests.Alpha
-	Against   string   // one of the Against* words (default AgainstLeast)
-	AppliesTo []string // effect structures the rule tests (nil: every one with a less constrained model)
+	Test      fit.TestKind    // lr (default), wald, score or brant
+	Alpha     float64         // default Tests.Alpha
+	Against   string          // one of the Against* words (default AgainstLeast)
+	AppliesTo []fit.Structure // effect structures the rule tests (nil: every one with a less constrained model)
 
 	// choose, prefer_simpler
 	By        string  // aic | bic | tic (default bic)
@@ -169,11 +170,14 @@ type Report struct {
 }
 
 // HasApproach reports whether the plan fits models of the given approach.
-func (m Models) HasApproach(a string) bool { return slices.Contains(m.Approaches, a) }
+func (m Models) HasApproach(a fit.Comparison) bool { return slices.Contains(m.Approaches, a) }
 
-// Sampling reports whether the weights are sampling (probability) weights,
+// Sampling reports whether the weights are sampling weights,
 // so that the fits maximize a pseudo-likelihood.
-func (d Data) Sampling() bool { return d.Weights != "" && d.WeightKind == "probability" }
+func (d Data) Sampling() bool { return d.Weights != "" && d.WeightKind == "sampling" }
 
-// HasLevel reports whether the plan fits models of the given level.
-func (m Models) HasLevel(l string) bool { return slices.Contains(m.Levels, l) }
+// HasEffects reports whether the plan fits models of the given effect structure.
+func (m Models) HasEffects(s fit.Structure) bool { return slices.Contains(m.Effects, s) }
+
+// Backward reports whether stage models run backward.
+func (m Models) Backward() bool { return m.Direction == "backward" }

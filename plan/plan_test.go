@@ -8,6 +8,8 @@ import (
 	"reflect"
 	"strings"
 	"testing"
+
+	"ordplan/runner/fit"
 )
 
 // base is a small valid plan; bad plans below are variations of it.
@@ -62,16 +64,16 @@ func TestExamplePlan(t *testing.T) {
 	check("Predictors", p.Predictors, []string{"pilot", "female", "age", "child_home", "years_log", "cyclist", "street_type", "pilot&street_type"})
 	check("Sources", p.SourceColumns(), []string{"pilot", "female", "age", "child_home", "years_resident", "cyclist", "street_type"})
 	check("Models", p.Models, Models{
-		Approaches: []string{"cumulative", "stage", "adjacent"},
+		Approaches: []fit.Comparison{fit.Cumulative, fit.Stage, fit.Adjacent},
 		Direction:  "forward",
-		Levels:     []string{"parallel", "partial", "constrained", "nonparallel", "stereotype"},
-		Links:      []string{"logit"},
+		Effects:    fit.StructureWords.All(),
+		Links:      []fit.Link{fit.Logit},
 		Partial: Partial{
 			Free:   []string{"pilot", "female"},
 			Groups: []Group{{Name: "g1", Predictors: []string{"pilot", "female"}}},
 		},
 	})
-	check("Tests", p.Tests, Tests{ParallelLines: []string{"brant", "lr", "score", "wald", "wolfe_gould"}, Alpha: 0.05})
+	check("Tests", p.Tests, Tests{ParallelLines: fit.TestWords.All(), Alpha: 0.05})
 	wantKinds := []string{RuleRejectUnconverged, RuleRejectNegativeProbabilities, RuleRejectIfSparse, RuleRejectIfTestRejects, RulePreferSimpler}
 	if len(p.Rules) != len(wantKinds) {
 		t.Fatalf("got %d rules, want %d", len(p.Rules), len(wantKinds))
@@ -83,9 +85,9 @@ func TestExamplePlan(t *testing.T) {
 		}
 	}
 	check("rule 2", p.Rules[2], Rule{Line: p.Rules[2].Line, Kind: RuleRejectIfSparse, PerParameter: 10, SmallestCategory: 5, Within: "pilot"})
-	check("rule 3", p.Rules[3], Rule{Line: p.Rules[3].Line, Kind: RuleRejectIfTestRejects, Test: "lr", Alpha: 0.05, Against: AgainstLeast})
+	check("rule 3", p.Rules[3], Rule{Line: p.Rules[3].Line, Kind: RuleRejectIfTestRejects, Test: fit.TestLR, Alpha: 0.05, Against: AgainstLeast})
 	check("rule 4", p.Rules[4], Rule{Line: p.Rules[4].Line, Kind: RulePreferSimpler, By: "bic", Margin: 2, Otherwise: OtherwiseStop})
-	check("Covariance", p.Covariance, "oim")
+	check("Covariance", p.Covariance, fit.Observed)
 	check("Report", p.Report, Report{
 		Title:           "Cycling safety after the quiet-streets pilot",
 		FocusPredictor:  "age",
@@ -108,18 +110,18 @@ func TestDefaults(t *testing.T) {
 		}
 	}
 	check("Seed", p.Seed, uint64(1))
-	check("Covariance", p.Covariance, "oim")
+	check("Covariance", p.Covariance, fit.Observed)
 	check("Data", p.Data, Data{File: "d.csv", Path: filepath.Join("plans", "d.csv"), Missing: "drop", WeightKind: "frequency"})
 	check("Outcomes", p.Outcomes, []Outcome{{Column: "y", Label: "y"}})
-	check("Approaches", p.Models.Approaches, []string{"cumulative", "stage", "adjacent"})
+	check("Approaches", p.Models.Approaches, []fit.Comparison{fit.Cumulative, fit.Stage, fit.Adjacent})
 	check("Direction", p.Models.Direction, "forward")
-	check("Levels", p.Models.Levels, []string{"parallel", "partial", "constrained", "nonparallel"})
-	check("Links", p.Models.Links, []string{"logit"})
+	check("Effects", p.Models.Effects, []fit.Structure{fit.ParallelEffects, fit.PartialEffects, fit.ConstrainedEffects, fit.NonparallelEffects})
+	check("Links", p.Models.Links, []fit.Link{fit.Logit})
 	check("Groups", p.Models.Partial.Groups, []Group{{Name: "", Predictors: []string{"a"}}})
 	check("Select", p.Models.Partial.Select, (*Select)(nil))
-	check("Tests", p.Tests, Tests{ParallelLines: []string{"brant", "lr", "score", "wald"}, Alpha: 0.1})
+	check("Tests", p.Tests, Tests{ParallelLines: []fit.TestKind{fit.TestBrant, fit.TestLR, fit.TestScore, fit.TestWald}, Alpha: 0.1})
 	check("Rules", p.Rules, []Rule{
-		{Line: 11, Kind: RuleRejectIfTestRejects, Test: "lr", Alpha: 0.1, Against: AgainstLeast},
+		{Line: 11, Kind: RuleRejectIfTestRejects, Test: fit.TestLR, Alpha: 0.1, Against: AgainstLeast},
 		{Line: 12, Kind: RulePreferSimpler, By: "bic", Margin: 2, Otherwise: OtherwiseStop},
 	})
 	check("Report", p.Report, Report{Title: "Small", FocusPredictor: "a", ConfidenceLevel: 0.95})
@@ -136,7 +138,7 @@ func TestDefaults(t *testing.T) {
 	check("Seed", p.Seed, uint64(0))
 	check("Data.Path", p.Data.Path, filepath.FromSlash("/abs/d.csv"))
 	check("MissingValues", p.Data.MissingValues, []string{})
-	check("Select", p.Models.Partial.Select, &Select{Method: "stepwise", Alpha: 0.05, Test: "wald"})
+	check("Select", p.Models.Partial.Select, &Select{Method: "stepwise", Alpha: 0.05, Test: fit.TestWald})
 	check("Groups", p.Models.Partial.Groups, []Group(nil))
 	check("Rules", p.Rules, []Rule{{Line: 12, Kind: RuleChoose, By: "aic", Margin: 0, Otherwise: OtherwiseStop}})
 	check("Report.Title", p.Report.Title, "Other")
@@ -191,10 +193,10 @@ func TestBadPlans(t *testing.T) {
 			[]string{`predictors[1]: name is empty`}},
 		{"unknown approach", "models:\n", "models:\n  approaches: [cumulative, ordinal]\n",
 			[]string{`bad.yaml:8:28: models.approaches[1]: unknown approach "ordinal" (want cumulative, stage or adjacent)`}},
-		{"unknown level", "models:\n", "models:\n  levels: [parallel, partial, full]\n",
-			[]string{`models.levels[2]: unknown level "full" (want parallel, partial, constrained, nonparallel or stereotype)`}},
+		{"unknown effect structure", "models:\n", "models:\n  effects: [parallel, partial, full]\n",
+			[]string{`models.effects[2]: unknown effect structure "full" (want parallel, partial, constrained, nonparallel or stereotype)`}},
 		{"unknown link", "models:\n", "models:\n  links: [logit, tobit]\n",
-			[]string{`models.links[1]: unknown link "tobit" (want logit, probit, cloglog, loglog or cauchit)`}},
+			[]string{`models.links[1]: unknown link "tobit" (want logit, probit, cloglog, loglog or cauchy)`}},
 		{"duplicate link", "models:\n", "models:\n  links: [logit, probit, logit]\n",
 			[]string{`bad.yaml:8:26: models.links[2]: "logit" is listed twice (first at line 8)`}},
 		{"unknown direction", "models:\n", "models:\n  direction: sideways\n",
@@ -207,16 +209,16 @@ func TestBadPlans(t *testing.T) {
 			[]string{`tests.alpha: 1.5 is out of range (want a number strictly between 0 and 1)`}},
 		{"alpha not finite", "", "tests: {alpha: .nan}\n",
 			[]string{`tests.alpha: want a finite number, got .nan`}},
-		{"unknown covariance", "", "covariance: sandwich\n",
-			[]string{`bad.yaml:12:13: covariance: unknown covariance "sandwich" (want oim, eim, robust, robust_hc0 or cluster)`}},
-		{"cluster covariance without cluster", "", "covariance: cluster\n",
-			[]string{`bad.yaml:12:13: covariance: cluster covariance needs a cluster column, and data.cluster is not set`}},
-		{"cluster column without cluster covariance", "  file: d.csv\n", "  file: d.csv\n  cluster: street\n",
-			[]string{`bad.yaml:4:12: data.cluster: the cluster column is used only with covariance: cluster`}},
+		{"unknown covariance", "", "covariance: bootstrap\n",
+			[]string{`bad.yaml:12:13: covariance: unknown covariance "bootstrap" (want observed, expected, sandwich, sandwich_plain or clustered)`}},
+		{"clustered covariance without cluster", "", "covariance: clustered\n",
+			[]string{`bad.yaml:12:13: covariance: clustered covariance needs a cluster column, and data.cluster is not set`}},
+		{"cluster column without clustered covariance", "  file: d.csv\n", "  file: d.csv\n  cluster: street\n",
+			[]string{`bad.yaml:4:12: data.cluster: the cluster column is used only with covariance: clustered`}},
 		{"unknown weight kind", "  file: d.csv\n", "  file: d.csv\n  weight_kind: survey\n",
-			[]string{`data.weight_kind: unknown weight kind "survey" (want frequency or probability)`}},
-		{"probability weights without weights", "  file: d.csv\n", "  file: d.csv\n  weight_kind: probability\n",
-			[]string{`bad.yaml:4:16: data.weight_kind: probability weights need a weights column`}},
+			[]string{`data.weight_kind: unknown weight kind "survey" (want frequency or sampling)`}},
+		{"sampling weights without weights", "  file: d.csv\n", "  file: d.csv\n  weight_kind: sampling\n",
+			[]string{`bad.yaml:4:16: data.weight_kind: sampling weights need a weights column`}},
 		{"unknown missing mode", "  file: d.csv\n", "  file: d.csv\n  missing: impute\n",
 			[]string{`data.missing: unknown missing-data mode "impute" (want drop or refuse)`}},
 		{"outcome also predictor", "predictors: [a, b, c]", "predictors: [a, y, c]",
@@ -236,13 +238,13 @@ func TestBadPlans(t *testing.T) {
 		{"free not a predictor", "free: [a]", "free: [a, z]",
 			[]string{`bad.yaml:9:15: models.partial.free[1]: "z" is not a predictor (predictors: a, b, c)`}},
 		{"no partial set", "models:\n  partial:\n    free: [a]\n", "",
-			[]string{`models.partial: levels "partial" and "constrained" need a partial set: give models.partial.free`}},
-		{"no partial set for constrained", "models:\n  partial:\n    free: [a]\n", "models:\n  levels: [parallel, constrained]\n",
-			[]string{`bad.yaml:8:3: models.partial: level "constrained" needs a partial set`}},
+			[]string{`models.partial: effect structures "partial" and "constrained" need a partial set: give models.partial.free`}},
+		{"no partial set for constrained", "models:\n  partial:\n    free: [a]\n", "models:\n  effects: [parallel, constrained]\n",
+			[]string{`bad.yaml:8:3: models.partial: effect structure "constrained" needs a partial set`}},
 		{"free and select", "    free: [a]\n", "    free: [a]\n    select: {method: stepwise}\n",
 			[]string{`bad.yaml:10:13: models.partial.select: give either free or select, not both`}},
-		{"partial unused", "models:\n", "models:\n  levels: [parallel, nonparallel]\n",
-			[]string{`bad.yaml:10:5: models.partial: is unused, because models.levels includes neither partial nor constrained`}},
+		{"partial unused", "models:\n", "models:\n  effects: [parallel, nonparallel]\n",
+			[]string{`bad.yaml:10:5: models.partial: is unused, because models.effects includes neither partial nor constrained`}},
 		{"select method", "free: [a]", "select: {method: lasso}",
 			[]string{`models.partial.select.method: unknown selection method "lasso" (want stepwise)`}},
 		{"select alpha", "free: [a]", "select: {alpha: 0}",
@@ -261,12 +263,12 @@ func TestBadPlans(t *testing.T) {
 			[]string{`models.partial.groups[0]: a name is required when there are several groups`}},
 		{"duplicate group names", "    free: [a]\n", "    free: [a, b]\n    groups:\n      - {name: g, predictors: [a]}\n      - {name: g, predictors: [b]}\n",
 			[]string{`bad.yaml:12:16: models.partial.groups[1].name: group name "g" is used twice (first at line 11)`}},
-		{"groups unused", "models:\n  partial:\n    free: [a]\n", "models:\n  levels: [partial]\n  partial:\n    free: [a]\n    groups: [{name: g, predictors: [a]}]\n",
-			[]string{`models.partial.groups: groups are used only by the constrained level`}},
+		{"groups unused", "models:\n  partial:\n    free: [a]\n", "models:\n  effects: [partial]\n  partial:\n    free: [a]\n    groups: [{name: g, predictors: [a]}]\n",
+			[]string{`models.partial.groups: groups are used only by the constrained effect structure`}},
 		{"groups with select", "free: [a]", "select: {test: lr}\n    groups: [{name: g, predictors: [a]}]",
 			[]string{`models.partial.groups: groups split a listed free set; they cannot be used with select`}},
-		{"stereotype without adjacent", "models:\n", "models:\n  approaches: [cumulative, stage]\n  levels: [parallel, partial, stereotype]\n",
-			[]string{`bad.yaml:9:31: models.levels[2]: the stereotype level needs the adjacent approach`}},
+		{"stereotype without adjacent", "models:\n", "models:\n  approaches: [cumulative, stage]\n  effects: [parallel, partial, stereotype]\n",
+			[]string{`bad.yaml:9:32: models.effects[2]: the stereotype effect structure needs the adjacent approach`}},
 		{"unknown rule kind", "  - choose: {by: aic}\n", "  - reject_everything: true\n  - choose: {by: aic}\n",
 			[]string{`bad.yaml:11:5: rules[0]: unknown rule kind "reject_everything" (want reject_unconverged, reject_negative_probabilities, reject_if_test_rejects, reject_if_simpler_is_close, reject_if_sparse, reject_if_unstable, choose or prefer_simpler)`}},
 		{"rule as string", "  - choose: {by: aic}\n", "  - reject_unconverged\n  - choose: {by: aic}\n",
@@ -297,27 +299,27 @@ func TestBadPlans(t *testing.T) {
 			[]string{`bad.yaml:12:5: rules[1]: repeats the rule at line 11`}},
 		{"negative probabilities without cumulative", tail, "models:\n  approaches: [stage, adjacent]\n  partial:\n    free: [a]\nrules:\n  - reject_negative_probabilities: true\n  - choose: {by: aic}\n",
 			[]string{`bad.yaml:12:36: rules[0].reject_negative_probabilities: applies only to cumulative fits, and models.approaches does not include cumulative`}},
-		{"test rule with one level", tail, "models:\n  levels: [parallel]\nrules:\n  - reject_if_test_rejects: true\n  - choose: {by: aic}\n",
-			[]string{`bad.yaml:10:29: rules[0].reject_if_test_rejects: tests each model against a less constrained one, but models.levels (parallel) gives no such pair`}},
-		{"brant outside cumulative logit", tail, "models:\n  approaches: [cumulative, stage]\n  levels: [parallel, nonparallel]\nrules:\n  - reject_if_test_rejects: {test: brant}\n  - choose: {by: aic}\n",
+		{"test rule with one effect structure", tail, "models:\n  effects: [parallel]\nrules:\n  - reject_if_test_rejects: true\n  - choose: {by: aic}\n",
+			[]string{`bad.yaml:10:29: rules[0].reject_if_test_rejects: tests each model against a less constrained one, but models.effects (parallel) gives no such pair`}},
+		{"brant outside cumulative logit", tail, "models:\n  approaches: [cumulative, stage]\n  effects: [parallel, nonparallel]\nrules:\n  - reject_if_test_rejects: {test: brant}\n  - choose: {by: aic}\n",
 			[]string{`bad.yaml:11:36: rules[0].reject_if_test_rejects.test: the Brant test is not defined for 1 of the 2 comparisons this rule makes (least_constrained): stage/parallel/logit against stage/nonparallel/logit; the Brant test compares the cumulative logit parallel model with the nonparallel one, and nothing else; use test: lr, or keep the Brant rule to a plan of cumulative logit models with applies_to: [parallel]`}},
-		{"brant with partial models", tail, "models:\n  approaches: [cumulative]\n  levels: [parallel, partial, nonparallel]\n  partial: {free: [a]}\nrules:\n  - reject_if_test_rejects: {test: brant, against: each_less_constrained}\n  - choose: {by: aic}\n",
+		{"brant with partial models", tail, "models:\n  approaches: [cumulative]\n  effects: [parallel, partial, nonparallel]\n  partial: {free: [a]}\nrules:\n  - reject_if_test_rejects: {test: brant, against: each_less_constrained}\n  - choose: {by: aic}\n",
 			[]string{`rules[0].reject_if_test_rejects.test: the Brant test is not defined for 2 of the 3 comparisons this rule makes (each_less_constrained): cumulative/parallel/logit against cumulative/partial/logit, cumulative/partial/logit against cumulative/nonparallel/logit;`}},
-		{"wald with constrained models", tail, "models:\n  approaches: [cumulative]\n  levels: [parallel, constrained]\n  partial: {free: [a]}\nrules:\n  - reject_if_test_rejects: {test: wald}\n  - choose: {by: aic}\n",
+		{"wald with constrained models", tail, "models:\n  approaches: [cumulative]\n  effects: [parallel, constrained]\n  partial: {free: [a]}\nrules:\n  - reject_if_test_rejects: {test: wald}\n  - choose: {by: aic}\n",
 			[]string{`rules[0].reject_if_test_rejects.test: the Wald test is not defined for 1 of the 1 comparisons this rule makes (least_constrained): cumulative/parallel/logit against cumulative/constrained/logit; the Wald test here compares models whose slopes are linear in the parameters`}},
 		{"unknown against", "  - choose: {by: aic}\n", "  - reject_if_test_rejects: {against: nearest}\n  - choose: {by: aic}\n",
 			[]string{`rules[0].reject_if_test_rejects.against: unknown comparison "nearest" (want least_constrained, next_less_constrained or each_less_constrained)`}},
-		{"applies_to leaves nothing", tail, "models:\n  levels: [parallel, nonparallel]\nrules:\n  - reject_if_test_rejects: {applies_to: [nonparallel]}\n  - choose: {by: aic}\n",
-			[]string{`rules[0].reject_if_test_rejects: tests each model against a less constrained one, but models.levels (parallel, nonparallel) with applies_to (nonparallel) gives no such pair`}},
-		{"sampling weights with bic", "  file: d.csv\n", "  file: d.csv\n  weights: w\n  weight_kind: probability\n",
-			[]string{`bad.yaml:13:18: rules[0].choose.by: by: aic assumes a likelihood, but with sampling weights (data.weight_kind: probability) the fits maximize a pseudo-likelihood; use by: tic`}},
+		{"applies_to leaves nothing", tail, "models:\n  effects: [parallel, nonparallel]\nrules:\n  - reject_if_test_rejects: {applies_to: [nonparallel]}\n  - choose: {by: aic}\n",
+			[]string{`rules[0].reject_if_test_rejects: tests each model against a less constrained one, but models.effects (parallel, nonparallel) with applies_to (nonparallel) gives no such pair`}},
+		{"sampling weights with bic", "  file: d.csv\n", "  file: d.csv\n  weights: w\n  weight_kind: sampling\n",
+			[]string{`bad.yaml:13:18: rules[0].choose.by: by: aic assumes a likelihood, but with sampling weights (data.weight_kind: sampling) the fits maximize a pseudo-likelihood; use by: tic`}},
 		{"sampling weights default criterion", "  file: d.csv\noutcomes:\n  - column: y\npredictors: [a, b, c]\nmodels:\n  partial:\n    free: [a]\nrules:\n  - choose: {by: aic}\n",
-			"  file: d.csv\n  weights: w\n  weight_kind: probability\noutcomes:\n  - column: y\npredictors: [a, b, c]\nmodels:\n  partial:\n    free: [a]\nrules:\n  - prefer_simpler: true\n",
+			"  file: d.csv\n  weights: w\n  weight_kind: sampling\noutcomes:\n  - column: y\npredictors: [a, b, c]\nmodels:\n  partial:\n    free: [a]\nrules:\n  - prefer_simpler: true\n",
 			[]string{`rules[0].prefer_simpler: by: bic (the default) assumes a likelihood`}},
-		{"sampling weights with lr test", "data:\n  file: d.csv\n", "data:\n  file: d.csv\n  weights: w\n  weight_kind: probability\n",
+		{"sampling weights with lr test", "data:\n  file: d.csv\n", "data:\n  file: d.csv\n  weights: w\n  weight_kind: sampling\n",
 			[]string{`rules[0].choose.by: by: aic assumes a likelihood`}},
 		{"fallback not in the grid", "{by: aic}", "{by: aic, otherwise: cumulative/stereotype/probit}",
-			[]string{`bad.yaml:11:34: rules[0].choose.otherwise: the fallback cumulative/stereotype/probit is not a model of the plan: effects "stereotype" are not in models.levels; link "probit" is not in models.links`}},
+			[]string{`bad.yaml:11:34: rules[0].choose.otherwise: the fallback cumulative/stereotype/probit is not a model of the plan: effects "stereotype" are not in models.effects; link "probit" is not in models.links`}},
 		{"fallback badly written", "{by: aic}", "{by: aic, otherwise: parallel}",
 			[]string{`rules[0].choose.otherwise: want stop or a model of the plan written approach/effects/link, such as cumulative/parallel/logit; got "parallel"`}},
 		{"close rule without amount", "  - choose: {by: aic}\n", "  - reject_if_simpler_is_close: {grid: {a: [0, 1]}}\n  - choose: {by: aic}\n",
@@ -336,7 +338,7 @@ func TestBadPlans(t *testing.T) {
 			[]string{`rules[0].reject_if_sparse.within: "y" is the outcome`}},
 		{"unstable rule without limits", "  - choose: {by: aic}\n", "  - reject_if_unstable: true\n  - choose: {by: aic}\n",
 			[]string{`rules[0].reject_if_unstable: give max_condition (largest condition number of the information), min_starts_agreeing (starts of a constrained search that reach the best value) or both`}},
-		{"unstable starts without constrained models", tail, "models:\n  levels: [parallel, nonparallel]\nrules:\n  - reject_if_unstable: {min_starts_agreeing: 2}\n  - choose: {by: aic}\n",
+		{"unstable starts without constrained models", tail, "models:\n  effects: [parallel, nonparallel]\nrules:\n  - reject_if_unstable: {min_starts_agreeing: 2}\n  - choose: {by: aic}\n",
 			[]string{`rules[0].reject_if_unstable.min_starts_agreeing: applies only to constrained and stereotype models`}},
 		{"unstable starts range", "  - choose: {by: aic}\n", "  - reject_if_unstable: {min_starts_agreeing: 0}\n  - choose: {by: aic}\n",
 			[]string{`rules[0].reject_if_unstable.min_starts_agreeing: 0 is out of range (want a whole number from 1 to 1000)`}},
@@ -513,24 +515,24 @@ func TestCanonical(t *testing.T) {
 }
 
 func TestInferenceSection(t *testing.T) {
-	base := "version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [a, b]\nmodels: {levels: [parallel]}\nrules:\n  - choose: {by: aic}\n"
-	p, err := Parse([]byte(base+"inference:\n  hypotheses: [\"a = b\", \"a = 0\"]\n  marginal_effects: [average, values]\n  at: {a: 2.5}\n  predict: new.csv\n"), "x/p.yaml")
+	base := "version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [a, b]\nmodels: {effects: [parallel]}\nrules:\n  - choose: {by: aic}\n"
+	p, err := Parse([]byte(base+"inference:\n  hypotheses: [\"a = b\", \"a = 0\"]\n  marginal_effects: [average, profile]\n  profile: {a: 2.5}\n  predict: new.csv\n"), "x/p.yaml")
 	if err != nil {
 		t.Fatal(err)
 	}
 	inf := p.Inference
-	if len(inf.Hypotheses) != 2 || inf.Hypotheses[0].Line != 9 || len(inf.At) != 1 || inf.At[0].Value != 2.5 || inf.PredictPath != "x/new.csv" {
+	if len(inf.Hypotheses) != 2 || inf.Hypotheses[0].Line != 9 || len(inf.Profile) != 1 || inf.Profile[0].Value != 2.5 || inf.PredictPath != "x/new.csv" {
 		t.Fatalf("%+v", inf)
 	}
 	if q, err := Parse(p.Canonical(), "x/p.yaml"); err != nil || string(q.Canonical()) != string(p.Canonical()) {
 		t.Fatalf("canonical round trip: %v", err)
 	}
 	for _, c := range []struct{ src, want string }{
-		{"inference:\n  at: {c: 1}\n  marginal_effects: [values]\n", `inference.at.c: "c" is not a column the predictors read`},
-		{"inference:\n  marginal_effects: [values]\n", "need inference.at"},
-		{"inference:\n  at: {a: 1}\n", "used only with marginal_effects"},
+		{"inference:\n  profile: {c: 1}\n  marginal_effects: [profile]\n", `inference.profile.c: "c" is not a column the predictors read`},
+		{"inference:\n  marginal_effects: [profile]\n", "need inference.profile"},
+		{"inference:\n  profile: {a: 1}\n", "used only with marginal_effects"},
 		{"inference:\n  marginal_effects: [median]\n", "median"},
-		{"inference:\n  at: {a: x}\n  marginal_effects: [values]\n", "give a number"},
+		{"inference:\n  profile: {a: x}\n  marginal_effects: [profile]\n", "give a number"},
 		{"inference:\n  hypothesis: [\"a = 0\"]\n", "unknown key"},
 	} {
 		_, err := Parse([]byte(base+c.src), "p.yaml")

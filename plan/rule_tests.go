@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"slices"
 	"strings"
+
+	"ordplan/runner/fit"
 )
 
 // The nesting of effect structures, the pairs a test rule compares and
@@ -22,27 +24,27 @@ var (
 
 // lessConstrained lists the effect structures in which a model with the
 // given effects is nested, from the nearest to the least constrained.
-var lessConstrained = map[string][]string{
-	"parallel":    {"constrained", "partial", "stereotype", "nonparallel"},
-	"constrained": {"partial", "nonparallel"},
-	"partial":     {"nonparallel"},
-	"stereotype":  {"nonparallel"},
+var lessConstrained = map[fit.Structure][]fit.Structure{
+	fit.ParallelEffects:    {fit.ConstrainedEffects, fit.PartialEffects, fit.StereotypeEffects, fit.NonparallelEffects},
+	fit.ConstrainedEffects: {fit.PartialEffects, fit.NonparallelEffects},
+	fit.PartialEffects:     {fit.NonparallelEffects},
+	fit.StereotypeEffects:  {fit.NonparallelEffects},
 }
 
 // EffectsFitted reports whether a plan fits models with effects e for the
 // approach (the stereotype structure exists for adjacent comparisons only).
-func (m Models) EffectsFitted(approach, e string) bool {
-	return m.HasLevel(e) && (e != "stereotype" || approach == "adjacent")
+func (m Models) EffectsFitted(approach fit.Comparison, e fit.Structure) bool {
+	return m.HasEffects(e) && (e != fit.StereotypeEffects || approach == fit.Adjacent)
 }
 
 // TestTargets gives the effect structures a model with effects e is tested
 // against by rule r, for one approach, among the effects the plan fits.
 // Nil means the rule does not test such a model.
-func (r Rule) TestTargets(m Models, approach, e string) []string {
+func (r Rule) TestTargets(m Models, approach fit.Comparison, e fit.Structure) []fit.Structure {
 	if r.AppliesTo != nil && !slices.Contains(r.AppliesTo, e) {
 		return nil
 	}
-	var present []string
+	var present []fit.Structure
 	for _, t := range lessConstrained[e] {
 		if m.EffectsFitted(approach, t) {
 			present = append(present, t)
@@ -63,50 +65,38 @@ func (r Rule) TestTargets(m Models, approach, e string) []string {
 // TestDefined reports whether the named test compares a model with effects
 // restricted against one with effects full (same approach and link), and
 // if not, why.
-func TestDefined(test, approach, link, restricted, full string, sampling bool) (bool, string) {
-	if sampling && test != "wald" {
-		return false, fmt.Sprintf("with sampling weights the fits maximize a pseudo-likelihood, and the %s test needs a likelihood (use test: wald)", TestName(test))
+func TestDefined(test fit.TestKind, approach fit.Comparison, link fit.Link, restricted, full fit.Structure, sampling bool) (bool, string) {
+	if sampling && test != fit.TestWald {
+		return false, fmt.Sprintf("with sampling weights the fits maximize a pseudo-likelihood, and the %s test needs a likelihood (use test: wald)", test.Title())
 	}
-	nonlinear := func(e string) bool { return e == "constrained" || e == "stereotype" }
+	nonlinear := func(e fit.Structure) bool { return e == fit.ConstrainedEffects || e == fit.StereotypeEffects }
 	switch test {
-	case "lr":
+	case fit.TestLR:
 		return true, ""
-	case "wald", "score":
+	case fit.TestWald, fit.TestScore:
 		if nonlinear(restricted) || nonlinear(full) {
-			return false, fmt.Sprintf("the %s test here compares models whose slopes are linear in the parameters (parallel, partial, nonparallel); constrained and stereotype effects are not", TestName(test))
+			return false, fmt.Sprintf("the %s test here compares models whose slopes are linear in the parameters (parallel, partial, nonparallel); constrained and stereotype effects are not", test.Title())
 		}
 		return true, ""
-	case "brant":
-		if approach == "cumulative" && link == "logit" && restricted == "parallel" && full == "nonparallel" {
+	case fit.TestBrant:
+		if approach == fit.Cumulative && link == fit.Logit && restricted == fit.ParallelEffects && full == fit.NonparallelEffects {
 			return true, ""
 		}
 		return false, "the Brant test compares the cumulative logit parallel model with the nonparallel one, and nothing else"
 	}
-	return false, "unknown test " + quote(test)
-}
-
-// TestName is the name of a test in sentences.
-func TestName(t string) string {
-	switch t {
-	case "lr":
-		return "likelihood-ratio"
-	case "wald":
-		return "Wald"
-	case "score":
-		return "score"
-	case "brant":
-		return "Brant"
-	}
-	return t
+	return false, "the " + test.Title() + " test does not compare two models of the grid"
 }
 
 // TestPair is one comparison a test rule makes.
 type TestPair struct {
-	Approach, Link, Restricted, Full string
+	Approach         fit.Comparison
+	Link             fit.Link
+	Restricted, Full fit.Structure
 }
 
 func (t TestPair) String() string {
-	return t.Approach + "/" + t.Restricted + "/" + t.Link + " against " + t.Approach + "/" + t.Full + "/" + t.Link
+	a := t.Approach.String()
+	return fit.ModelID(a, t.Restricted.String(), t.Link) + " against " + fit.ModelID(a, t.Full.String(), t.Link)
 }
 
 // TestPairs lists every comparison a test rule makes in the plan, in grid
@@ -115,7 +105,7 @@ func (p *Plan) TestPairs(r Rule) []TestPair {
 	var out []TestPair
 	for _, a := range p.Models.Approaches {
 		for _, l := range p.Models.Links {
-			for _, e := range p.Models.Levels {
+			for _, e := range p.Models.Effects {
 				if !p.Models.EffectsFitted(a, e) {
 					continue
 				}

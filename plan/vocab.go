@@ -1,22 +1,23 @@
 package plan
 
-import "strings"
+import (
+	"fmt"
+	"strings"
 
-// Allowed words, in the order they are listed in messages.
+	"ordplan/internal/words"
+	"ordplan/runner/fit"
+)
+
+// Words that only the plan uses, in the order they are listed in messages.
+// The words of the model vocabulary (approaches, effect structures, links,
+// tests, covariance kinds) belong to their types in runner/fit.
 var (
-	approachWords     = []string{"cumulative", "stage", "adjacent"}
 	directionWords    = []string{"forward", "backward"}
-	levelWords        = []string{"parallel", "partial", "constrained", "nonparallel", "stereotype"}
-	linkWords         = []string{"logit", "probit", "cloglog", "loglog", "cauchit"}
-	parallelTestWords = []string{"brant", "lr", "score", "wald", "wolfe_gould"}
-	ruleTestWords     = []string{"lr", "wald", "score", "brant"}
 	criterionWords    = []string{"aic", "bic", "tic"}
 	againstWords      = []string{AgainstLeast, AgainstNext, AgainstEach}
-	covarianceWords   = []string{"oim", "eim", "robust", "robust_hc0", "cluster"}
 	missingWords      = []string{"drop", "refuse"}
-	weightKindWords   = []string{"frequency", "probability"}
+	weightKindWords   = []string{"frequency", "sampling"}
 	selectMethodWords = []string{"stepwise"}
-	selectTestWords   = []string{"wald", "lr"}
 	ruleKindWords     = []string{
 		RuleRejectUnconverged,
 		RuleRejectNegativeProbabilities,
@@ -29,12 +30,19 @@ var (
 	}
 )
 
+// The tests each setting allows, out of fit.TestWords.
+var (
+	parallelTests = fit.TestWords.All()
+	ruleTests     = []fit.TestKind{fit.TestLR, fit.TestWald, fit.TestScore, fit.TestBrant}
+	selectTests   = []fit.TestKind{fit.TestWald, fit.TestLR}
+)
+
 // Defaults that are lists.
 var (
-	defaultApproaches    = []string{"cumulative", "stage", "adjacent"}
-	defaultLevels        = []string{"parallel", "partial", "constrained", "nonparallel"}
-	defaultLinks         = []string{"logit"}
-	defaultParallelLines = []string{"brant", "lr", "score", "wald"}
+	defaultApproaches    = fit.ComparisonWords.All()
+	defaultEffects       = []fit.Structure{fit.ParallelEffects, fit.PartialEffects, fit.ConstrainedEffects, fit.NonparallelEffects}
+	defaultLinks         = []fit.Link{fit.Logit}
+	defaultParallelLines = []fit.TestKind{fit.TestBrant, fit.TestLR, fit.TestScore, fit.TestWald}
 )
 
 // Keys allowed in each mapping.
@@ -42,7 +50,7 @@ var (
 	topKeys     = []string{"version", "title", "seed", "data", "outcomes", "subset", "categorical", "predictors", "models", "tests", "rules", "covariance", "report", "inference", "dictionary", "assumptions", "deviations"}
 	dataKeys    = []string{"file", "missing", "missing_values", "weights", "weight_kind", "offset", "cluster"}
 	outcomeKeys = []string{"column", "categories", "label", "predictors"}
-	modelsKeys  = []string{"approaches", "direction", "levels", "links", "partial"}
+	modelsKeys  = []string{"approaches", "direction", "effects", "links", "partial"}
 	partialKeys = []string{"free", "select", "groups"}
 	selectKeys  = []string{"method", "alpha", "test"}
 	groupKeys   = []string{"name", "predictors"}
@@ -51,27 +59,60 @@ var (
 )
 
 // orList renders ["a", "b", "c"] as "a, b or c".
-func orList(words []string) string {
-	switch len(words) {
-	case 0:
-		return ""
-	case 1:
-		return words[0]
-	}
-	return strings.Join(words[:len(words)-1], ", ") + " or " + words[len(words)-1]
+func orList(ws []string) string { return words.OrList(ws) }
+
+// unknownWord explains why s is not one of ws, suggesting a match
+// that differs only in letter case or separators.
+func unknownWord(what, s string, ws []string) string {
+	return words.Unknown(what, clip(s), ws)
 }
 
-// unknownWord explains why s is not one of words, suggesting a match
-// that differs only in letter case or separators.
-func unknownWord(what, s string, words []string) string {
-	msg := "unknown " + what + " " + quote(s) + " (want " + orList(words) + ")"
-	norm := func(w string) string {
-		return strings.NewReplacer("-", "_", " ", "_").Replace(strings.ToLower(strings.TrimSpace(w)))
+// joinWords lists words of a vocabulary, comma separated.
+func joinWords[T fmt.Stringer](xs []T) string {
+	out := make([]string, len(xs))
+	for i, x := range xs {
+		out[i] = x.String()
 	}
-	for _, w := range words {
-		if norm(s) == norm(w) {
-			return msg + `; did you mean "` + w + `"?`
-		}
+	return strings.Join(out, ", ")
+}
+
+// names gives the words of vals.
+func names[T fmt.Stringer](vals []T) []string {
+	out := make([]string, len(vals))
+	for i, v := range vals {
+		out[i] = v.String()
 	}
-	return msg
+	return out
+}
+
+// typedWord reads one word of set (what names it in messages), limited to
+// allowed, into *dst; *dst keeps its default when the key is absent, null
+// or bad.
+func typedWord[T interface {
+	~int
+	String() string
+}](m *mapping, key, what string, set words.Set[T], allowed []T, dst *T) {
+	var s string
+	m.word(key, what, names(allowed), &s)
+	if s != "" {
+		*dst, _ = set.Parse(s)
+	}
+}
+
+// typedWords reads a list of words of set, limited to allowed, into *dst;
+// see mapping.words.
+func typedWords[T interface {
+	~int
+	String() string
+}](m *mapping, key, what string, set words.Set[T], allowed []T, emptyOK bool, dst *[]T) {
+	var list []string
+	if !m.words(key, what, names(allowed), emptyOK, &list) {
+		return
+	}
+	out := make([]T, 0, len(list))
+	for _, w := range list {
+		v, _ := set.Parse(w)
+		out = append(out, v)
+	}
+	*dst = out
 }

@@ -25,8 +25,9 @@ func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		return
 	}
 	level, z := confidence(r)
-	npID := ch.Approach + "/" + runner.LevelNonparallel + "/" + ch.Link
-	np := or.Find(npID)
+	approach := ch.Result.Model.ComparisonName()
+	npID := fit.ModelID(approach, fit.NonparallelEffects.String(), ch.Link)
+	np := or.Cell(ch.Approach, fit.NonparallelEffects, ch.Link)
 	switch {
 	case np == nil:
 		d.p("Not drawn: the plan fitted no %s model.", npID)
@@ -35,13 +36,13 @@ func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		d.p("Not drawn: %s has no usable estimates (%s).", npID, fitProblem(np))
 		return
 	}
-	parID := ch.Approach + "/" + runner.LevelParallel + "/" + ch.Link
-	par := or.Find(parID)
+	parID := fit.ModelID(approach, fit.ParallelEffects.String(), ch.Link)
+	par := or.Cell(ch.Approach, fit.ParallelEffects, ch.Link)
 	if !par.OK() {
 		par = nil
 	}
 	var chosen *fit.Result
-	if ch.Level != runner.LevelParallel && ch.Level != runner.LevelNonparallel {
+	if ch.Effects != fit.ParallelEffects && ch.Effects != fit.NonparallelEffects {
 		chosen = ch.Result
 	}
 	res := np.Result
@@ -51,16 +52,16 @@ func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	bounds := make([]string, q)
 	head := []string{"Predictor"}
 	for m := 0; m < q; m++ {
-		bounds[m] = res.Levels[m] + "|" + res.Levels[m+1]
+		bounds[m] = fit.BoundaryLabel(res.Categories, m)
 		head = append(head, fmt.Sprintf("b[%d] %s", m+1, bounds[m]))
 	}
-	if ch.Level == runner.LevelParallel {
+	if ch.Effects == fit.ParallelEffects {
 		head = append(head, "parallel (chosen)")
 	} else {
 		head = append(head, "parallel")
 	}
 	if chosen != nil {
-		head = append(head, ch.Level+" (chosen)")
+		head = append(head, ch.Effects.String()+" (chosen)")
 	}
 	var rows [][]string
 	var cs []*chart
@@ -80,7 +81,7 @@ func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			row = append(row, chosenCell(chosen, k))
 		}
 		rows = append(rows, row)
-		cs = append(cs, boundaryChart(d, pred, bounds, est, se, z, level, par, chosen, ch.Level, k))
+		cs = append(cs, boundaryChart(d, pred, bounds, est, se, z, level, par, chosen, ch.Effects.String(), k))
 	}
 	if len(rows) > 0 {
 		d.captioned(fmt.Sprintf("Slopes at each boundary, %s", npID)).table(head, rows)

@@ -18,7 +18,7 @@ func writeChosen(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	res := or.Chosen.Result
 	level, z := confidence(r)
 	d.h(3, "The chosen model: "+or.Chosen.ID)
-	d.p("Log-likelihood %s, %d parameters, AIC %s, BIC %s, %s observations. Linear predictor of boundary m: L_m = cut_m - x'b_m; a positive slope moves the outcome towards higher categories.",
+	d.p("Log-likelihood %s, %d parameters, AIC %s, BIC %s, %s observations. Linear predictor of boundary m: L_m = tau[m] - x'b_m; a positive slope moves the outcome towards higher categories.",
 		numfmt.Fixed(res.LogLik, 4), res.NParams, numfmt.Fixed(res.AIC, 3), numfmt.Fixed(res.BIC, 3), numfmt.Num(res.NObs))
 	grouped := or.Design != nil && !or.Design.Trivial()
 	var rows [][]string

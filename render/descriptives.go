@@ -28,7 +28,7 @@ type descriptive struct {
 // a categorical column (its cells hold the level index), nil for a
 // numeric one.
 func describe(ds *data.Dataset, levels [][]string) []descriptive {
-	K, J := ds.K, len(ds.Levels)
+	K, J := ds.K, len(ds.Categories)
 	var out []descriptive
 	one := func(label string, counts bool, value func(i int) float64) {
 		s := descriptive{Label: label, Counts: counts, N: make([]float64, J+1), Mean: make([]float64, J+1),
@@ -107,7 +107,7 @@ func sourceLevels(or *runner.OutcomeResult) [][]string {
 func writeDescriptives(d *doc, or *runner.OutcomeResult) {
 	ds := describe(or.Data, sourceLevels(or))
 	if len(ds) > 0 {
-		lv := or.Data.Levels
+		lv := or.Data.Categories
 		weighted := ""
 		if or.Data.Weights != nil {
 			weighted = " Counts, means and SDs are weighted by the frequency weights."

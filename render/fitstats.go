@@ -59,14 +59,14 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	}
 	kind := fit.OddsRatioKind(res.Model)
 	d.h(4, "Odds ratios")
-	lo, hi := res.Levels[0], res.Levels[1]
+	lo, hi := res.Categories[0], res.Categories[1]
 	d.p("exp(b) for a one-unit increase of each predictor, with %s intervals exp(b ∓ z·se): the %s. At the first boundary (%s/%s) it multiplies the %s, and likewise at the other boundaries; above 1 the outcome moves towards higher categories. A parallel predictor has one value for every boundary; a constrained predictor has exp(φ_m g) at boundary m, its interval from the delta method on b_m = φ_m g.",
 		pct(level), kind, lo, hi, fit.OddsRatioMeaning(res.Model, lo, hi))
 	var rows [][]string
 	for _, o := range ors {
 		where := "every boundary"
 		if o.Boundary > 0 {
-			where = fmt.Sprintf("%d (%s/%s)", o.Boundary, res.Levels[o.Boundary-1], res.Levels[o.Boundary])
+			where = fmt.Sprintf("%d (%s/%s)", o.Boundary, res.Categories[o.Boundary-1], res.Categories[o.Boundary])
 		}
 		rows = append(rows, []string{o.Predictor, where, numfmt.Fixed(o.Ratio, 4), numfmt.Fixed(o.Low, 4), numfmt.Fixed(o.High, 4)})
 	}
@@ -95,7 +95,7 @@ func writeGoodnessOfFit(d *doc, or *runner.OutcomeResult) {
 		return
 	}
 	d.p("Rows are sorted by their predicted ordinal score (the expected category, categories scored 1 to %d) and cut into %d groups of about equal size; rows with the same score stay in one group. The Lipsitz test refits the chosen model with an indicator of each group but the first as an extra parallel predictor: if the model describes the data well along its own score, those indicators add nothing.",
-		len(t.Levels), t.Groups)
+		len(t.Categories), t.Groups)
 	if lz.Test.OK {
 		d.p("Lipsitz test: chi-square(%d) = %s, %s.", lz.Test.DF, numfmt.Stat(lz.Test.Chi2), numfmt.PText(lz.Test.P))
 	} else {
@@ -103,13 +103,13 @@ func writeGoodnessOfFit(d *doc, or *runner.OutcomeResult) {
 	}
 	d.p("Observed and expected counts (the sum of the predicted probabilities) of each category in each group:")
 	head := []string{"Group", "Score range", "N"}
-	for _, l := range t.Levels {
+	for _, l := range t.Categories {
 		head = append(head, l+" obs", l+" exp")
 	}
 	var rows [][]string
 	for g := 0; g < t.Groups; g++ {
 		row := []string{fmt.Sprint(g + 1), numfmt.Fixed(t.Low[g], 3) + "–" + numfmt.Fixed(t.High[g], 3), numfmt.Num(t.Weight[g])}
-		for j := range t.Levels {
+		for j := range t.Categories {
 			row = append(row, numfmt.Num(t.Observed[g][j]), numfmt.Fixed(t.Expected[g][j], 1))
 		}
 		rows = append(rows, row)
@@ -133,11 +133,11 @@ func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 		groups[g] = fmt.Sprint(g + 1)
 	}
 	l.SetXAxis(groups)
-	J := len(t.Levels)
+	J := len(t.Categories)
 	fig := newFigure("Observed and expected by group of predicted score", "group of predicted score", "share of the group")
 	fig.xNames = groups
 	fig.yMin = 0
-	for j, lv := range t.Levels {
+	for j, lv := range t.Categories {
 		obs, exp := make([]float64, t.Groups), make([]float64, t.Groups)
 		for g := 0; g < t.Groups; g++ {
 			obs[g] = t.Observed[g][j] / t.Weight[g]

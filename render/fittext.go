@@ -22,11 +22,13 @@ type DataSummary struct {
 	DropSummary string
 }
 
-// ParamLabel adds the category boundary to cutpoint names: "cut1 (SD|D)".
+// ParamLabel adds the category boundary to the names of boundary
+// parameters: "tau[1] (SD/D)".
 func ParamLabel(r *fit.Result, name string) string {
-	var m int
-	if _, err := fmt.Sscanf(name, "cut%d", &m); err == nil && m >= 1 && m < len(r.Levels) && name == fmt.Sprintf("cut%d", m) {
-		return fmt.Sprintf("%s (%s|%s)", name, r.Levels[m-1], r.Levels[m])
+	for m := 1; m < len(r.Categories); m++ {
+		if name == fit.TauName(m) {
+			return name + " (" + fit.BoundaryLabel(r.Categories, m-1) + ")"
+		}
 	}
 	return name
 }
@@ -38,7 +40,7 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 	}
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	fmt.Fprintf(tw, "Model\t%s\n", r.Name)
-	fmt.Fprintf(tw, "Outcome\t%s: %s (%d categories)\n", ds.Outcome, strings.Join(r.Levels, " < "), r.J)
+	fmt.Fprintf(tw, "Outcome\t%s: %s (%d categories)\n", ds.Outcome, strings.Join(r.Categories, " < "), r.J)
 	if ds.File != "" {
 		fmt.Fprintf(tw, "Data\t%s: %d rows read, %d used; %s\n", ds.File, ds.RowsRead, ds.RowsUsed, ds.DropSummary)
 	}
@@ -70,7 +72,7 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 	if err := tw.Flush(); err != nil {
 		return err
 	}
-	fmt.Fprintf(w, "\nA positive slope moves the outcome towards higher categories. L_m = cut_m - x'b_m.\n")
+	fmt.Fprintf(w, "\nA positive slope moves the outcome towards higher categories. L_m = tau[m] - x'b_m.\n")
 	if r.Status == fit.StatusNegativeProbs {
 		fmt.Fprintf(w, "Warning: %s.\n", r.Message)
 	}
@@ -85,31 +87,31 @@ func statusLine(r *fit.Result) string {
 	return string(r.Status)
 }
 
-func covName(c string) string {
+func covName(c fit.Covariance) string {
 	switch c {
-	case fit.CovEIM:
+	case fit.Expected:
 		return "expected information"
-	case fit.CovOIM:
+	case fit.Observed:
 		return "observed information"
-	case fit.CovRobust:
+	case fit.Sandwich:
 		return "sandwich (HC1: times N/(N-P))"
-	case fit.CovRobustHC0:
+	case fit.SandwichPlain:
 		return "sandwich (HC0: no small-sample factor)"
-	case fit.CovCluster:
+	case fit.Clustered:
 		return "cluster-robust sandwich (CR1: times G/(G-1) (N-1)/(N-P))"
 	}
-	return c
+	return c.String()
 }
 
 // BaselineTable writes the baseline-category form of an adjacent
 // nonparallel logit.
 func BaselineTable(w io.Writer, r *fit.Result, b *fit.Baseline) {
-	fmt.Fprintf(w, "\nBaseline-category form: ln[P(y=j)/P(y=%s)] = cut + x'c (plus sign)\n", r.Levels[b.Ref])
+	fmt.Fprintf(w, "\nBaseline-category form: ln[P(y=j)/P(y=%s)] = alpha + x'c (plus sign)\n", r.Categories[b.Ref])
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintf(tw, "parameter\tcategory\testimate\tstd. error\t\n")
 	nc := len(b.Categories)
 	for i, n := range b.Names {
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", n, r.Levels[b.Categories[i%nc]], numfmt.Num(b.Estimates[i]), numfmt.Num(b.StdErrors[i]))
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t\n", n, r.Categories[b.Categories[i%nc]], numfmt.Num(b.Estimates[i]), numfmt.Num(b.StdErrors[i]))
 	}
 	tw.Flush()
 }
@@ -123,7 +125,7 @@ func StereotypeTable(w io.Writer, r *fit.Result) error {
 	fmt.Fprintf(w, "\nCategory-score form: %s\n", s.Normalization)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	fmt.Fprintf(tw, "category\talpha\tstd. error\tscore\tstd. error\t\n")
-	for j, l := range s.Levels {
+	for j, l := range s.Categories {
 		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t\n", l, numfmt.Num(s.Alpha[j]), numfmt.Num(s.AlphaSE[j]), numfmt.Num(s.Score[j]), numfmt.Num(s.ScoreSE[j]))
 	}
 	fmt.Fprintf(tw, "predictor\tbeta\tstd. error\t\t\t\n")

@@ -6,6 +6,7 @@ import (
 	"encoding/hex"
 	"fmt"
 	"strconv"
+	"strings"
 
 	"ordplan/render/numfmt"
 	"ordplan/runner"
@@ -70,8 +71,8 @@ func writeNewRows(d *doc, or *runner.OutcomeResult) {
 			neg++
 		}
 	}
-	d.p("The chosen model's predictions for the %d rows of `%s` (%d rows read, %d skipped for a missing value) are in `%s`: for each row its line in the file, the category probabilities, the cumulative probabilities P(y <= m), the expected category (categories scored 1 to %d), the most likely category and the linear predictors, each with its delta-method standard error. Rows with a negative predicted probability: %d.",
-		nr.Rows.N, nr.File, nr.Rows.RowsRead, len(nr.Rows.Skipped), predictionsFile(or), len(or.Data.Levels), neg)
+	d.p("The chosen model's predictions for the %d rows of `%s` (%d rows read, %d skipped for a missing value) are in `%s`: for each row its line in the file and the file's own columns (so a row label travels with its predictions), the category probabilities (`prob_CATEGORY`), the cumulative probabilities P(y <= m) (`cumprob_CATEGORY`), the expected category (`expected`, categories scored 1 to %d), the most likely category and the linear predictors (`linear_m`), each number with its delta-method standard error (`se_...`). Rows with a negative predicted probability: %d.",
+		nr.Rows.N, nr.File, nr.Rows.RowsRead, len(nr.Rows.Skipped), predictionsFile(or), len(or.Data.Categories), neg)
 }
 
 // predictionsFile names the predictions file of an outcome: the column
@@ -96,28 +97,52 @@ func predictionsFile(or *runner.OutcomeResult) string {
 	return "predictions-" + string(name) + ".csv"
 }
 
-// predictionsCSV writes the predictions for new rows.
+// predictionsCSV writes the predictions for new rows: the row's line in
+// the new-rows file, every column of that file as written (so its
+// identifying columns, such as a row label, travel with the predictions),
+// then the predictions. Every header name is a plain identifier (letters,
+// digits, '_'), usable without quoting.
 func predictionsCSV(or *runner.OutcomeResult) []byte {
 	nr := or.NewRows
 	pr := nr.Pred
-	lv := or.Data.Levels
+	lv := or.Data.Categories
 	J, q := pr.J, pr.J-1
+	cat := csvNames(lv)
+	var head []string
+	head = append(head, "line")
+	for _, c := range cat {
+		head = append(head, "prob_"+c, "se_prob_"+c)
+	}
+	for m := 0; m < q; m++ {
+		head = append(head, "cumprob_"+cat[m], "se_cumprob_"+cat[m])
+	}
+	head = append(head, "expected", "se_expected", "most_likely")
+	for m := 1; m <= q; m++ {
+		head = append(head, fmt.Sprintf("linear_%d", m), fmt.Sprintf("se_linear_%d", m))
+	}
+	head = append(head, "negative")
+	ours := map[string]bool{}
+	for _, h := range head {
+		ours[h] = true
+	}
+	// The new-rows file's columns follow "line"; a name that clashes
+	// with a prediction column gets the suffix _input.
+	in := csvNames(nr.Rows.Header)
+	for i := range in {
+		for ours[in[i]] {
+			in[i] += "_input"
+		}
+		ours[in[i]] = true
+	}
+	head = append(head[:1], append(in, head[1:]...)...)
 	var b bytes.Buffer
 	f := func(x float64) string { return strconv.FormatFloat(x, 'g', 10, 64) }
-	b.WriteString("line")
-	for _, l := range lv {
-		fmt.Fprintf(&b, ",P(%s),se P(%s)", l, l)
-	}
-	for m := 0; m < q; m++ {
-		fmt.Fprintf(&b, ",P(<=%s),se P(<=%s)", lv[m], lv[m])
-	}
-	b.WriteString(",expected,se expected,most_likely")
-	for m := 0; m < q; m++ {
-		fmt.Fprintf(&b, ",L%d,se L%d", m+1, m+1)
-	}
-	b.WriteString(",negative\n")
+	b.WriteString(strings.Join(head, ",") + "\n")
 	for i := 0; i < pr.N; i++ {
 		b.WriteString(strconv.Itoa(nr.Rows.Lines[i]))
+		for _, c := range nr.Rows.Cells[i] {
+			b.WriteString("," + csvCell(c))
+		}
 		for j := 0; j < J; j++ {
 			b.WriteString("," + f(pr.Prob[i*J+j]) + "," + f(pr.SE[i*J+j]))
 		}
@@ -133,10 +158,37 @@ func predictionsCSV(or *runner.OutcomeResult) []byte {
 	return b.Bytes()
 }
 
+// csvNames turns labels into header names a program can use without
+// quoting: letters, digits and '_' only, not starting with a digit, and
+// distinct (a repeat gets _2, _3, ...).
+func csvNames(labels []string) []string {
+	out := make([]string, len(labels))
+	seen := map[string]bool{}
+	for i, l := range labels {
+		r := []rune(l)
+		for k, c := range r {
+			if !(c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' || c == '_') {
+				r[k] = '_'
+			}
+		}
+		name := string(r)
+		if name == "" || name[0] >= '0' && name[0] <= '9' {
+			name = "c" + name
+		}
+		base := name
+		for n := 2; seen[name]; n++ {
+			name = fmt.Sprintf("%s_%d", base, n)
+		}
+		seen[name] = true
+		out[i] = name
+	}
+	return out
+}
+
 func csvCell(s string) string {
 	for _, c := range s {
-		if c == ',' || c == '"' || c == '\n' {
-			return strconv.Quote(s)
+		if c == ',' || c == '"' || c == '\n' || c == '\r' {
+			return `"` + strings.ReplaceAll(s, `"`, `""`) + `"`
 		}
 	}
 	return s

@@ -9,7 +9,7 @@ import (
 )
 
 // writeMarginalEffects writes the chosen model's marginal effects of each
-// kind the plan asks for (average, at the means, at given values).
+// kind the plan asks for (average, at the means, at the plan's profile).
 func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	level, _ := confidence(r)
 	categorical := ""
@@ -27,10 +27,10 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			}
 		case "means":
 			d.h(3, "Marginal effects at the means")
-			d.p("The same effects at one point: every predictor at its mean (%s), a 0/1 predictor changed from 0 to 1 with the others at their means. Standard errors by the delta method; intervals at %s.%s", atList(or, set.At), pct(level), atCategorical(categorical))
-		case "values":
-			d.h(3, "Marginal effects at the plan's values")
-			d.p("The effects at the point %s (predictors the plan does not set are at their means, categorical ones at their reference level; a 0/1 predictor is changed from 0 to 1, any other numeric predictor differentiated, at that point). Standard errors by the delta method; intervals at %s.%s", atList(or, set.At), pct(level), atCategorical(categorical))
+			d.p("The same effects at one point: every predictor at its mean (%s), a 0/1 predictor changed from 0 to 1 with the others at their means. Standard errors by the delta method; intervals at %s.%s", pointList(or, set.Point), pct(level), atCategorical(categorical))
+		case "profile":
+			d.h(3, "Marginal effects at the plan's profile")
+			d.p("The effects at the point %s (predictors the plan's profile does not set are at their means, categorical ones at their reference level; a 0/1 predictor is changed from 0 to 1, any other numeric predictor differentiated, at that point). Standard errors by the delta method; intervals at %s.%s", pointList(or, set.Point), pct(level), atCategorical(categorical))
 		}
 		if set.Error != "" {
 			d.p("Not computed: %s.", set.Error)
@@ -55,9 +55,9 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	}
 }
 
-// atList writes the raw row of marginal effects at one point: each
+// pointList writes the raw row of marginal effects at one point: each
 // column the predictors read, categorical ones at a level.
-func atList(or *runner.OutcomeResult, x []float64) string {
+func pointList(or *runner.OutcomeResult, x []float64) string {
 	var parts []string
 	names := or.FitData.Predictors
 	var cat []bool

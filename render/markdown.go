@@ -7,6 +7,7 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"ordplan/runner"
+	"ordplan/runner/fit"
 )
 
 // build writes the whole report of a run.
@@ -86,11 +87,11 @@ func writePlan(d *doc, r *runner.Result) {
 	d.h(2, "The plan")
 	rows := [][]string{
 		{"Predictors", strings.Join(p.Predictors, ", ")},
-		{"Approaches", strings.Join(p.Models.Approaches, ", ") + stageDirection(r)},
-		{"Levels", strings.Join(p.Models.Levels, ", ")},
-		{"Links", strings.Join(p.Models.Links, ", ")},
-		{"Parallel-lines tests", strings.Join(p.Tests.ParallelLines, ", ") + fmt.Sprintf(" (alpha %g)", p.Tests.Alpha)},
-		{"Standard errors", p.Covariance},
+		{"Approaches", joinWords(p.Models.Approaches) + stageDirection(r)},
+		{"Effect structures", joinWords(p.Models.Effects)},
+		{"Links", joinWords(p.Models.Links)},
+		{"Parallel-lines tests", joinWords(p.Tests.ParallelLines) + fmt.Sprintf(" (alpha %g)", p.Tests.Alpha)},
+		{"Standard errors", p.Covariance.String()},
 		{"Missing values", p.Data.Missing},
 	}
 	if p.Models.Partial.Select != nil {
@@ -120,7 +121,7 @@ func writePlan(d *doc, r *runner.Result) {
 }
 
 func stageDirection(r *runner.Result) string {
-	if r.Plan.Models.HasApproach("stage") {
+	if r.Plan.Models.HasApproach(fit.Stage) {
 		return " (stage direction: " + r.Plan.Models.Direction + ")"
 	}
 	return ""
@@ -137,4 +138,13 @@ func writeLimits(d *doc) {
 		"Information criteria and tests compare models on the same rows; rows with a missing value were dropped before any model was fitted.",
 		"Standard errors of predicted probabilities and marginal effects use the delta method: they are first-order approximations that treat the chosen model as fixed, not as the result of the selection made by the rules.",
 	})
+}
+
+// joinWords lists words of a vocabulary, comma separated.
+func joinWords[T fmt.Stringer](xs []T) string {
+	out := make([]string, len(xs))
+	for i, x := range xs {
+		out[i] = x.String()
+	}
+	return strings.Join(out, ", ")
 }

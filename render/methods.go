@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"ordplan/runner"
+	"ordplan/runner/fit"
 )
 
 // A methods paragraph generated from the plan and the run, in the
@@ -72,7 +73,7 @@ func writeMethods(d *doc, r *runner.Result) {
 		var s []string
 		ds := or.Data
 		s = append(s, fmt.Sprintf("The outcome %s (%d ordered categories, from %s to %s) was analysed with ordinal regression models fitted by maximum likelihood (ordplan %s).",
-			or.Outcome.Label, len(ds.Levels), ds.Levels[0], ds.Levels[len(ds.Levels)-1], r.Version))
+			or.Outcome.Label, len(ds.Categories), ds.Categories[0], ds.Categories[len(ds.Categories)-1], r.Version))
 		if ds.RowsDropped > 0 {
 			s = append(s, fmt.Sprintf("Of %d rows, %d were used; %d were dropped for missing values or zero weight before any model was fitted.", ds.RowsRead, ds.N, ds.RowsDropped))
 		} else {
@@ -81,46 +82,44 @@ func writeMethods(d *doc, r *runner.Result) {
 		var comps []string
 		for _, a := range p.Models.Approaches {
 			switch a {
-			case "cumulative":
+			case fit.Cumulative:
 				comps = append(comps, "cumulative logits (the proportional odds model when effects are parallel) "+c.cite("mccullagh"))
-			case "stage":
+			case fit.Stage:
 				comps = append(comps, "continuation-ratio (sequential) comparisons "+c.cite("fienberg", "mare"))
-			case "adjacent":
+			case fit.Adjacent:
 				comps = append(comps, "adjacent-category comparisons "+c.cite("agresti"))
 			}
 		}
 		var effects []string
-		for _, lv := range p.Models.Levels {
-			switch lv {
-			case runner.LevelParallel:
+		for _, e := range p.Models.Effects {
+			switch e {
+			case fit.ParallelEffects:
 				effects = append(effects, "parallel effects")
-			case runner.LevelPartial:
+			case fit.PartialEffects:
 				effects = append(effects, "partial effects free to differ across category boundaries for a subset of predictors "+c.cite("peterson"))
-			case runner.LevelConstrained:
+			case fit.ConstrainedEffects:
 				effects = append(effects, "partial effects constrained to a common factor across boundaries "+c.cite("peterson", "hauser"))
-			case runner.LevelNonparallel:
+			case fit.NonparallelEffects:
 				effects = append(effects, "fully nonparallel effects")
-			case runner.LevelStereotype:
+			case fit.StereotypeEffects:
 				effects = append(effects, "the one-dimensional stereotype model "+c.cite("anderson"))
 			}
 		}
 		s = append(s, fmt.Sprintf("The candidate models, fixed in an analysis plan before fitting (plan SHA-256 %s), crossed %s with %s, using the %s link%s.",
-			short(p.Hash), joinAnd(comps), joinAnd(effects), joinAnd(p.Models.Links), plural(len(p.Models.Links))))
+			short(p.Hash), joinAnd(comps), joinAnd(effects), joinAnd(wordList(p.Models.Links)), plural(len(p.Models.Links))))
 		if sel := p.Models.Partial.Select; sel != nil {
-			s = append(s, fmt.Sprintf("The predictors allowed non-parallel effects were selected by backward stepwise imposition of parallel constraints with %s tests at alpha = %g %s.", testLabel(sel.Test), sel.Alpha, c.cite("williams")))
+			s = append(s, fmt.Sprintf("The predictors allowed non-parallel effects were selected by backward stepwise imposition of parallel constraints with %s tests at alpha = %g %s.", sel.Test.Title(), sel.Alpha, c.cite("williams")))
 		}
 		if len(p.Tests.ParallelLines) > 0 {
 			var tests []string
 			for _, t := range p.Tests.ParallelLines {
 				switch t {
-				case "brant":
+				case fit.TestBrant:
 					tests = append(tests, "Brant "+c.cite("brant"))
-				case "wolfe_gould":
+				case fit.TestWolfeGould:
 					tests = append(tests, "Wolfe-Gould "+c.cite("wolfe"))
-				case "lr":
-					tests = append(tests, "likelihood-ratio")
 				default:
-					tests = append(tests, testLabel(t))
+					tests = append(tests, t.Title())
 				}
 			}
 			s = append(s, fmt.Sprintf("The parallel-lines assumption was tested by %s tests (alpha = %g), overall and for each predictor.", joinAnd(tests), p.Tests.Alpha))
@@ -155,13 +154,13 @@ func writeMethods(d *doc, r *runner.Result) {
 
 func covarianceOfPlan(r *runner.Result) string {
 	switch r.Plan.Covariance {
-	case "eim":
+	case fit.Expected:
 		return "expected information"
-	case "robust", "sandwich":
+	case fit.Sandwich:
 		return "sandwich estimator with a small-sample factor"
-	case "robust_hc0", "sandwich_plain":
+	case fit.SandwichPlain:
 		return "sandwich estimator without a small-sample factor"
-	case "cluster", "clustered":
+	case fit.Clustered:
 		return "cluster-robust sandwich estimator"
 	}
 	return "observed information"
@@ -213,4 +212,13 @@ func writeReproducibility(d *doc, r *runner.Result) {
 	}
 	d.captioned("What produced this report").table([]string{"Item", "Value"}, rows)
 	d.p("The command line leaves out the options that cannot change the results (output directory, number of workers, queue server, progress lines). The same program, plan, data and seed give the same report byte for byte; run.json lists the SHA-256 hash of every output file.")
+}
+
+// wordList gives the words of vocabulary values.
+func wordList[T fmt.Stringer](xs []T) []string {
+	out := make([]string, len(xs))
+	for i, x := range xs {
+		out[i] = x.String()
+	}
+	return out
 }

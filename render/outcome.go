@@ -41,9 +41,9 @@ func writeData(d *doc, or *runner.OutcomeResult) {
 	ds := or.Data
 	d.h(3, "Data")
 	d.p("Outcome column `%s`, %d categories in this order: %s. %d rows read, %d used; %s. Observations (sum of weights): %s.",
-		or.Outcome.Column, len(ds.Levels), strings.Join(ds.Levels, " < "), ds.RowsRead, ds.N, ds.DropSummary(), numfmt.Num(ds.NObs()))
+		or.Outcome.Column, len(ds.Categories), strings.Join(ds.Categories, " < "), ds.RowsRead, ds.N, ds.DropSummary(), numfmt.Num(ds.NObs()))
 	var rows [][]string
-	for j, l := range ds.Levels {
+	for j, l := range ds.Categories {
 		rows = append(rows, []string{l, numfmt.Num(ds.Counts[j]), numfmt.Fixed(100*ds.Counts[j]/ds.NObs(), 1) + "%"})
 	}
 	d.captioned("Outcome categories").table([]string{"Category", "Count", "Share"}, rows)
@@ -66,7 +66,7 @@ func writeFreeSets(d *doc, or *runner.OutcomeResult) {
 		if set == "" {
 			set = "(none)"
 		}
-		rows = append(rows, []string{fs.Approach, set, fs.Source})
+		rows = append(rows, []string{fs.Approach.String(), set, fs.Source})
 	}
 	d.table([]string{"Approach", "Predictors allowed to vary", "Source"}, rows)
 	for _, s := range or.Stepwise {

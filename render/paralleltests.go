@@ -12,7 +12,7 @@ func writeTests(d *doc, or *runner.OutcomeResult) {
 	d.h(3, "Tests of the parallel-lines assumption")
 	d.p("Each test compares the model with one slope per predictor against the model with a slope per category boundary. Small p-values speak against parallel lines; in large samples they reject even differences too small to matter.")
 	for _, tb := range or.Tests {
-		d.h(4, tb.Approach+", "+tb.Link)
+		d.h(4, tb.Approach.String()+", "+tb.Link.String())
 		var rows [][]string
 		for _, t := range tb.Global {
 			rows = append(rows, testRow(testLabel(t.Name)+" (all predictors)", t))

@@ -61,7 +61,7 @@ func writePredictionPanel(d *doc, r *runner.Result, or *runner.OutcomeResult, fi
 	d.p("Probability of each category under the chosen model when `%s` %s, with %s. Standard errors, in brackets, are delta-method approximations from the model's covariance matrix.",
 		pf.focus, span, pf.heldAt())
 	head := []string{pf.focus}
-	for _, l := range res.Levels {
+	for _, l := range res.Categories {
 		head = append(head, "P("+l+")")
 	}
 	head = append(head, "Negative?")
@@ -138,7 +138,7 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 	if neg > 0 {
 		caption += fmt.Sprintf(" At %d of the %d points drawn some probability is negative.", neg, len(xs))
 	}
-	J := len(res.Levels)
+	J := len(res.Categories)
 	probs := func(j int) []float64 {
 		out := make([]float64, len(xs))
 		for i := range xs {
@@ -160,7 +160,7 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 		b.SetXAxis(labels)
 		fig.xNames, fig.yMax = labels, 1
 		bottom := make([]float64, len(xs))
-		for j, l := range res.Levels {
+		for j, l := range res.Categories {
 			data := make([]opts.BarData, len(xs))
 			top := make([]float64, len(xs))
 			for i, p := range probs(j) {
@@ -180,7 +180,7 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 		charts.WithXAxisOpts(gridAxis(pf.focus)),
 		charts.WithYAxisOpts(opts.YAxis{Name: "probability", Type: "value", Min: 0}))...)
 	l.SetXAxis(gridLabels(xs))
-	for j, lv := range res.Levels {
+	for j, lv := range res.Categories {
 		col := categoryColor(j, J)
 		p := probs(j)
 		lo, width := make([]float64, len(xs)), make([]float64, len(xs))
@@ -231,7 +231,7 @@ func cumulativeChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 		sub = or.Chosen.ID + "; " + label
 	}
 	caption := fmt.Sprintf("The category probabilities of %s stacked, lowest category at the bottom: the upper edge of each layer is the cumulative probability P(%s <= category) as %s varies.", or.Outcome.Column, or.Outcome.Column, pf.focus)
-	J := len(res.Levels)
+	J := len(res.Categories)
 	l := charts.NewLine()
 	l.SetGlobalOptions(append(baseOpts(id, title, sub, 420, predictionGrid),
 		charts.WithXAxisOpts(gridAxis(pf.focus)),
@@ -240,7 +240,7 @@ func cumulativeChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 	fig := newFigure(title, pf.focus, "cumulative probability")
 	fig.yMin, fig.yMax = 0, 1
 	bottom := make([]float64, len(xs))
-	for j, lv := range res.Levels {
+	for j, lv := range res.Categories {
 		col := categoryColor(j, J)
 		p := make([]float64, len(xs))
 		top := make([]float64, len(xs))

@@ -72,7 +72,7 @@ func TestValAndColors(t *testing.T) {
 
 func TestBoundarySlopesNeedStandardErrors(t *testing.T) {
 	res := &fit.Result{J: 3, Predictors: []string{"a"}, Effects: [][]float64{{1}, {2}},
-		ParamNames: []string{"cut1", "cut2", "a[1]", "a[2]"}, StdErrors: []float64{1, 1, 0.5, 0.25}}
+		ParamNames: []string{"tau[1]", "tau[2]", "a[1]", "a[2]"}, StdErrors: []float64{1, 1, 0.5, 0.25}}
 	est, se, ok := boundarySlopes(res, 0)
 	if !ok || fmt.Sprint(est, se) != "[1 2] [0.5 0.25]" {
 		t.Errorf("got %v %v %v", est, se, ok)
@@ -94,7 +94,7 @@ func crossingFit(t *testing.T) (*fit.Data, *fit.Result) {
 		d.X = append(d.X, x)
 		d.Y = append(d.Y, (i*7)%3)
 	}
-	spec, err := runner.LevelSpec("cumulative", false, "logit", runner.LevelNonparallel, d.Predictors, nil, nil)
+	spec, err := runner.EffectsSpec(fit.Cumulative, false, fit.Logit, fit.NonparallelEffects, d.Predictors, nil, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -106,7 +106,7 @@ func crossingFit(t *testing.T) (*fit.Data, *fit.Result) {
 	if err != nil || !res.OK() {
 		t.Fatalf("fit: %v %v", err, res)
 	}
-	set := map[string]float64{"cut1": -0.5, "cut2": 0.5, "x[1]": 1, "x[2]": -1}
+	set := map[string]float64{"tau[1]": -0.5, "tau[2]": 0.5, "x[1]": 1, "x[2]": -1}
 	for i, n := range res.ParamNames {
 		v, ok := set[n]
 		if !ok {
@@ -121,7 +121,7 @@ func TestPredictionsFlagNegativeProbabilities(t *testing.T) {
 	d, res := crossingFit(t)
 	r := &runner.Result{Plan: &plan.Plan{Predictors: []string{"x"}, Report: plan.Report{FocusPredictor: "x", ConfidenceLevel: 0.95}}}
 	or := &runner.OutcomeResult{Outcome: plan.Outcome{Column: "y", Label: "y"}, FitData: d,
-		Chosen: &runner.FitEntry{ID: "cumulative/nonparallel/logit", Approach: "cumulative", Level: runner.LevelNonparallel, Link: "logit", Result: res}}
+		Chosen: &runner.FitEntry{ID: "cumulative/nonparallel/logit", Approach: fit.Cumulative, Effects: fit.NonparallelEffects, Link: fit.Logit, Result: res}}
 	doc := &doc{}
 	writePredictions(doc, r, or)
 	md := string(doc.markdown())

@@ -80,8 +80,8 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	for _, s := range describe(or.Data, sourceLevels(or)) {
 		for c := range s.N {
 			cat := "all"
-			if c < len(or.Data.Levels) {
-				cat = or.Data.Levels[c]
+			if c < len(or.Data.Categories) {
+				cat = or.Data.Categories[c]
 			}
 			row := []string{s.Label, cat, csvNum(s.N[c])}
 			if s.Counts {
@@ -180,7 +180,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 			for _, x := range ors {
 				b := ""
 				if x.Boundary > 0 {
-					b = res.Levels[x.Boundary-1] + "/" + res.Levels[x.Boundary]
+					b = res.Categories[x.Boundary-1] + "/" + res.Categories[x.Boundary]
 				}
 				rows = append(rows, []string{or.Chosen.ID, x.Predictor, strconv.Itoa(x.Boundary), b, x.Kind, csvNum(x.Log), csvNum(x.LogSE), csvNum(x.Ratio), csvNum(x.Low), csvNum(x.High)})
 			}
@@ -200,15 +200,15 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	}
 	for _, tb := range or.Tests {
 		for _, t := range tb.Global {
-			testRow("parallel_lines", tb.Approach, tb.Link, "all predictors", t)
+			testRow("parallel_lines", tb.Approach.String(), tb.Link.String(), "all predictors", t)
 		}
 		for _, vt := range tb.PerVariable {
 			for _, t := range vt.Tests {
-				testRow("parallel_lines", tb.Approach, tb.Link, vt.Predictor, t)
+				testRow("parallel_lines", tb.Approach.String(), tb.Link.String(), vt.Predictor, t)
 			}
 		}
 		for _, nt := range tb.Nested {
-			testRow("nested_lr", tb.Approach, tb.Link, nt.Restricted+" within "+nt.Full, nt.Test)
+			testRow("nested_lr", tb.Approach.String(), tb.Link.String(), nt.Restricted+" within "+nt.Full, nt.Test)
 		}
 	}
 	for _, ov := range or.Overall {
@@ -253,7 +253,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 			for i, x := range xs {
 				for j := 0; j < pred.J; j++ {
 					p, se := pred.Prob[i*pred.J+j], pred.SE[i*pred.J+j]
-					rows = append(rows, []string{pf.Label(x), or.Data.Levels[j], csvNum(p), csvNum(se), csvNum(p - z*se), csvNum(p + z*se)})
+					rows = append(rows, []string{pf.Label(x), or.Data.Categories[j], csvNum(p), csvNum(se), csvNum(p - z*se), csvNum(p + z*se)})
 				}
 			}
 			add("predicted", fmt.Sprintf("predicted probabilities of the chosen model over %s (other predictors at their means) with delta-method %s%% intervals", pf.focus, lv),
@@ -265,7 +265,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		t := lz.Table
 		rows = nil
 		for g := 0; g < t.Groups; g++ {
-			for j, l := range t.Levels {
+			for j, l := range t.Categories {
 				rows = append(rows, []string{strconv.Itoa(g + 1), csvNum(t.Low[g]), csvNum(t.High[g]), csvNum(t.Weight[g]), l, csvNum(t.Observed[g][j]), csvNum(t.Expected[g][j])})
 			}
 		}

@@ -12,8 +12,8 @@ import (
 type FitRecord struct {
 	Model        string               `json:"model"`
 	Approach     string               `json:"approach"`
-	Level        string               `json:"level"`
-	Link         string               `json:"link"`
+	Effects      fit.Structure        `json:"effects"`
+	Link         fit.Link             `json:"link"`
 	Status       string               `json:"status"`
 	Message      string               `json:"message,omitempty"`
 	Converged    bool                 `json:"converged"`
@@ -24,11 +24,12 @@ type FitRecord struct {
 	NObs         float64              `json:"nobs"`
 	AIC          *float64             `json:"aic"`
 	BIC          *float64             `json:"bic"`
-	Cutpoints    []float64            `json:"cutpoints"`
-	Effects      map[string][]float64 `json:"effects"`
+	Tau          []float64            `json:"tau"`        // tau[1]..tau[J-1]
+	Boundaries   []string             `json:"boundaries"` // label of boundary m: lower/upper category
+	Slopes       map[string][]float64 `json:"slopes"`     // per predictor, one slope per boundary
 	Estimates    map[string]float64   `json:"estimates"`
 	StdErrors    map[string]float64   `json:"std_errors"`
-	Covariance   string               `json:"covariance,omitempty"`
+	Covariance   *CovarianceJSON      `json:"covariance,omitempty"`
 	Phi          map[string][]float64 `json:"phi,omitempty"`
 	NegativeRows int                  `json:"rows_with_negative_probabilities"`
 	Condition    *float64             `json:"information_condition"`
@@ -37,6 +38,14 @@ type FitRecord struct {
 	Starts       []StartJSON          `json:"starts,omitempty"`
 	StartsAgree  int                  `json:"starts_reaching_best,omitempty"`
 	PhiNotes     []string             `json:"phi_notes,omitempty"`
+}
+
+// CovarianceJSON is the covariance matrix of a fit's estimates, with the
+// parameters' names in the order of its rows and columns.
+type CovarianceJSON struct {
+	Kind       fit.Covariance `json:"kind"`
+	Parameters []string       `json:"parameters"`
+	Matrix     [][]float64    `json:"matrix"`
 }
 
 // StartJSON is one start of a constrained fit's search.
@@ -58,7 +67,7 @@ func num(x float64) *float64 {
 // Record builds the JSON view of a fit.
 func Record(r *fit.Result) FitRecord {
 	rec := FitRecord{
-		Model: r.Name, Approach: r.Model.ComparisonName(), Level: r.Model.Level(), Link: r.Model.Link.String(),
+		Model: r.Name, Approach: r.Model.ComparisonName(), Effects: r.Model.Structure(), Link: r.Model.Link,
 		Status: string(r.Status), Message: r.Message, Converged: r.Converged, Iterations: r.Iterations,
 		MaxAbsScore: num(r.MaxAbsScore), NParams: r.NParams, NObs: r.NObs,
 		NegativeRows: r.NegativeRows, Condition: num(r.Condition), Separation: r.Separation,
@@ -78,14 +87,18 @@ func Record(r *fit.Result) FitRecord {
 		return rec
 	}
 	rec.LogLik, rec.AIC, rec.BIC = num(r.LogLik), num(r.AIC), num(r.BIC)
-	rec.Cutpoints = r.Cutpoints
-	rec.Effects = map[string][]float64{}
+	rec.Tau = r.Cutpoints
+	rec.Boundaries = []string{}
+	for m := range r.Cutpoints {
+		rec.Boundaries = append(rec.Boundaries, fit.BoundaryLabel(r.Categories, m))
+	}
+	rec.Slopes = map[string][]float64{}
 	for k, p := range r.Predictors {
 		col := make([]float64, len(r.Effects))
 		for m := range r.Effects {
 			col[m] = r.Effects[m][k]
 		}
-		rec.Effects[p] = col
+		rec.Slopes[p] = col
 	}
 	rec.Estimates = map[string]float64{}
 	rec.StdErrors = map[string]float64{}
@@ -93,7 +106,12 @@ func Record(r *fit.Result) FitRecord {
 		rec.Estimates[n] = r.Estimates[i]
 		rec.StdErrors[n] = r.StdErrors[i]
 	}
-	rec.Covariance = r.CovType
+	P := len(r.ParamNames)
+	cov := &CovarianceJSON{Kind: r.CovType, Parameters: r.ParamNames, Matrix: make([][]float64, P)}
+	for i := range cov.Matrix {
+		cov.Matrix[i] = r.Cov[i*P : (i+1)*P]
+	}
+	rec.Covariance = cov
 	if len(r.Phi) > 0 {
 		rec.Phi = map[string][]float64{}
 		for g, ph := range r.Phi {

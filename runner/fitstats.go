@@ -32,27 +32,27 @@ func (o OverallRecord) MarshalJSON() ([]byte, error) {
 
 // NullRecord is the thresholds-only fit of one approach and link.
 type NullRecord struct {
-	Approach string      `json:"approach"`
-	Link     string      `json:"link"`
-	Result   *fit.Result `json:"-"`
-	Error    string      `json:"error,omitempty"`
+	Approach fit.Comparison `json:"approach"`
+	Link     fit.Link       `json:"link"`
+	Result   *fit.Result    `json:"-"`
+	Error    string         `json:"error,omitempty"`
 }
 
 // likelihoodNote is why likelihood-ratio statistics are not tests under
-// probability (sampling) weights.
-const likelihoodNote = "the weights are probability (sampling) weights: the log-likelihood is a pseudo-likelihood, so likelihood-ratio statistics are not chi-square tests"
+// sampling weights.
+const likelihoodNote = "the weights are sampling weights: the log-likelihood is a pseudo-likelihood, so likelihood-ratio statistics are not chi-square tests"
 
 // runFitStats fits the thresholds-only model of every approach and link
 // of the candidates, compares every usable candidate with it, and runs the
 // Lipsitz test of the chosen model with its calibration table.
 func runFitStats(p *plan.Plan, or *OutcomeResult, fopt fit.Options) {
-	prob := probabilityWeights(p)
+	prob := samplingWeights(p)
 	nulls := map[string]*NullRecord{}
 	for _, f := range or.Fits {
 		if f.Auxiliary || !f.OK() {
 			continue
 		}
-		key := f.Result.Model.ComparisonName() + "/" + f.Link
+		key := fit.ModelID(f.Result.Model.ComparisonName(), "thresholds-only", f.Link)
 		nr := nulls[key]
 		if nr == nil {
 			nr = &NullRecord{Approach: f.Approach, Link: f.Link}
@@ -67,7 +67,7 @@ func runFitStats(p *plan.Plan, or *OutcomeResult, fopt fit.Options) {
 		if prob && o.LR.OK {
 			o.LR = fit.Test{Name: o.LR.Name, Reason: likelihoodNote}
 		}
-		or.Overall = append(or.Overall, OverallRecord{Model: f.ID, Null: f.Approach + "/thresholds-only/" + f.Link, Overall: o})
+		or.Overall = append(or.Overall, OverallRecord{Model: f.ID, Null: key, Overall: o})
 	}
 	if or.Chosen == nil || !or.Chosen.OK() {
 		return

@@ -26,11 +26,11 @@ type HypothesisResult struct {
 
 // MarginalSet is one kind of marginal effects of the chosen model.
 type MarginalSet struct {
-	Kind     string               `json:"kind"`                // average, means or values
-	At       []float64            `json:"at,omitempty"`        // the raw row: one value per column read
-	AtLevels []string             `json:"at_levels,omitempty"` // the level of each categorical column of At
-	Effects  []fit.MarginalEffect `json:"effects"`
-	Error    string               `json:"error,omitempty"`
+	Kind        string               `json:"kind"`                   // average, means or profile
+	Point       []float64            `json:"point,omitempty"`        // the raw row: one value per column read
+	PointLevels []string             `json:"point_levels,omitempty"` // the level of each categorical column of Point
+	Effects     []fit.MarginalEffect `json:"effects"`
+	Error       string               `json:"error,omitempty"`
 	// Notes name the columns whose effects could not be computed, and why.
 	Notes []string `json:"notes,omitempty"`
 }
@@ -64,9 +64,9 @@ func runInference(p *plan.Plan, or *OutcomeResult) error {
 		case "average":
 			set.Effects, set.Notes, err = sourceEffects(or, res, or.Data.X, or.Data.N, or.Data.Offset, or.Data.Weights, level)
 		default:
-			raw := or.representative(inf.At, kind == "values")
-			set.At = raw
-			set.AtLevels = or.levelsAt(raw)
+			raw := or.representative(inf.Profile, kind == "profile")
+			set.Point = raw
+			set.PointLevels = or.levelsAt(raw)
 			var off []float64
 			if or.Data.Offset != nil {
 				off = []float64{weightedMean(or.Data.Offset, or.Data.Weights)}
@@ -206,8 +206,8 @@ func (or *OutcomeResult) binarySource(s int) bool {
 
 // representative is one raw row: numeric columns at their (weighted)
 // means over the rows used, categorical columns at their reference level,
-// then the plan's stated values (withAt).
-func (or *OutcomeResult) representative(at []plan.AtValue, withAt bool) []float64 {
+// then the values of the plan's profile (withProfile).
+func (or *OutcomeResult) representative(profile []plan.ProfileValue, withProfile bool) []float64 {
 	dz := or.Design
 	S := len(dz.Sources)
 	raw := make([]float64, S)
@@ -223,8 +223,8 @@ func (or *OutcomeResult) representative(at []plan.AtValue, withAt bool) []float6
 		}
 		raw[s] = weightedMean(col, or.Data.Weights)
 	}
-	if withAt {
-		for _, a := range at {
+	if withProfile {
+		for _, a := range profile {
 			s := dz.Source(a.Predictor)
 			if s < 0 {
 				continue
@@ -282,7 +282,7 @@ func hypothesisTests(h plan.Hypothesis, or *OutcomeResult) []HypothesisResult {
 			if strings.Contains(err.Error(), "is not a parameter") {
 				continue
 			}
-			out = append(out, HypothesisResult{Text: h.Text, Line: h.Line, Model: f.ID, Test: fit.Test{Name: "wald", Reason: err.Error()}})
+			out = append(out, HypothesisResult{Text: h.Text, Line: h.Line, Model: f.ID, Test: fit.Test{Name: fit.TestWald.String(), Reason: err.Error()}})
 			continue
 		}
 		out = append(out, HypothesisResult{Text: h.Text, Line: h.Line, Model: f.ID, Test: fit.WaldLinear(f.Result, hy)})
@@ -292,7 +292,7 @@ func hypothesisTests(h plan.Hypothesis, or *OutcomeResult) []HypothesisResult {
 		if lastErr != nil {
 			reason += ": " + lastErr.Error()
 		}
-		out = append(out, HypothesisResult{Text: h.Text, Line: h.Line, Test: fit.Test{Name: "wald", Reason: reason}})
+		out = append(out, HypothesisResult{Text: h.Text, Line: h.Line, Test: fit.Test{Name: fit.TestWald.String(), Reason: reason}})
 	}
 	return out
 }

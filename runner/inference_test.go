@@ -25,14 +25,14 @@ title: inference
 data: {file: ` + abs + `}
 outcomes: [{column: warm}]
 predictors: [yr89, male, white, age, ed, prst]
-models: {approaches: [cumulative], levels: [parallel, nonparallel]}
+models: {approaches: [cumulative], effects: [parallel, nonparallel]}
 tests: {parallel_lines: []}
 rules:
   - choose: {by: aic}
 inference:
   hypotheses: ["yr89[1] = yr89[2] = yr89[3]", "height = 0"]
-  marginal_effects: [average, means, values]
-  at: {age: 30}
+  marginal_effects: [average, means, profile]
+  profile: {age: 30}
   predict: new.csv
 `
 	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644)
@@ -59,7 +59,7 @@ inference:
 	if !found {
 		t.Fatalf("hypothesis not tested in the nonparallel model: %+v", or.Hypotheses)
 	}
-	if len(or.Marginal) != 3 || or.Marginal[2].At[3] != 30 || or.Marginal[1].At[3] == 30 {
+	if len(or.Marginal) != 3 || or.Marginal[2].Point[3] != 30 || or.Marginal[1].Point[3] == 30 {
 		t.Fatalf("marginal sets %+v", or.Marginal)
 	}
 	for _, set := range or.Marginal {

@@ -8,21 +8,12 @@ import (
 	"ordplan/runner/fit"
 )
 
-// Levels of the typology a plan can ask for.
-const (
-	LevelParallel    = "parallel"
-	LevelPartial     = "partial"
-	LevelConstrained = "constrained"
-	LevelNonparallel = "nonparallel"
-	LevelStereotype  = "stereotype"
-)
-
 // Spec says which model to build: the comparison, the stage direction, the
 // link, and the effect structure of each predictor.
 type Spec struct {
-	Approach    string   // cumulative | stage | adjacent
-	Backward    bool     // stage direction
-	Link        string   // logit, probit, cloglog, loglog, cauchit
+	Approach    fit.Comparison
+	Backward    bool // stage direction
+	Link        fit.Link
 	Predictors  []string // all predictors, in order
 	Nonparallel []string // predictors with free slopes
 	Groups      []Group  // constrained predictors by group
@@ -35,28 +26,29 @@ type Group struct {
 	Predictors []string
 }
 
-// LevelSpec builds the Spec of a typology cell: level parallel,
-// partial (free listed), constrained (groups), nonparallel or stereotype.
-func LevelSpec(approach string, backward bool, link, level string, predictors, free []string, groups []Group) (Spec, error) {
+// EffectsSpec builds the Spec of a typology cell: effect structure
+// parallel, partial (free listed), constrained (groups), nonparallel or
+// stereotype.
+func EffectsSpec(approach fit.Comparison, backward bool, link fit.Link, effects fit.Structure, predictors, free []string, groups []Group) (Spec, error) {
 	s := Spec{Approach: approach, Backward: backward, Link: link, Predictors: predictors}
-	switch level {
-	case LevelParallel:
-	case LevelPartial:
+	switch effects {
+	case fit.ParallelEffects:
+	case fit.PartialEffects:
 		s.Nonparallel = free
-	case LevelConstrained:
+	case fit.ConstrainedEffects:
 		if len(groups) == 0 {
 			groups = []Group{{Predictors: free}}
 		}
 		s.Groups = groups
-	case LevelNonparallel:
+	case fit.NonparallelEffects:
 		s.Nonparallel = predictors
-	case LevelStereotype:
-		if approach != "adjacent" {
+	case fit.StereotypeEffects:
+		if approach != fit.Adjacent {
 			return s, fmt.Errorf("the stereotype model is an adjacent-category model, not %s", approach)
 		}
 		s.Groups = []Group{{Predictors: predictors}}
 	default:
-		return s, fmt.Errorf("unknown level %q (want parallel, partial, constrained, nonparallel or stereotype)", level)
+		return s, fmt.Errorf("no %s", effects)
 	}
 	return s, nil
 }
@@ -64,18 +56,10 @@ func LevelSpec(approach string, backward bool, link, level string, predictors, f
 // Model turns a Spec into a fit.Model, checking every name.
 func (s Spec) Model() (fit.Model, error) {
 	var m fit.Model
-	c, err := fit.ParseComparison(s.Approach)
-	if err != nil {
-		return m, err
-	}
-	if s.Backward && c != fit.Stage {
+	if s.Backward && s.Approach != fit.Stage {
 		return m, fmt.Errorf("the backward direction exists for the stage approach only")
 	}
-	l, err := fit.ParseLink(s.Link)
-	if err != nil {
-		return m, err
-	}
-	m = fit.Model{Comparison: c, Backward: s.Backward, Link: l, Effects: make([]fit.Effect, len(s.Predictors)), Groups: make([]int, len(s.Predictors))}
+	m = fit.Model{Comparison: s.Approach, Backward: s.Backward, Link: s.Link, Effects: make([]fit.Effect, len(s.Predictors)), Groups: make([]int, len(s.Predictors))}
 	index := map[string]int{}
 	for k, p := range s.Predictors {
 		if _, dup := index[p]; dup {

@@ -209,19 +209,19 @@ func (c *propCase) randomPlan(rng *rand.Rand, id int) string {
 	}
 	fmt.Fprintf(&b, "predictors: %s\n", yamlList(preds))
 	approaches := pick(rng, []string{"cumulative", "stage", "adjacent"}, 1)
-	levels := pick(rng, []string{"parallel", "partial", "constrained", "nonparallel", "stereotype"}, 1)
-	if slices.Contains(levels, "stereotype") && !slices.Contains(approaches, "adjacent") {
+	effects := pick(rng, []string{"parallel", "partial", "constrained", "nonparallel", "stereotype"}, 1)
+	if slices.Contains(effects, "stereotype") && !slices.Contains(approaches, "adjacent") {
 		approaches = append(approaches, "adjacent")
 	}
 	links := []string{"logit"}
 	if rng.IntN(3) == 0 {
-		links = pick(rng, []string{"logit", "probit", "cloglog", "loglog", "cauchit"}, 1)[:1]
+		links = pick(rng, []string{"logit", "probit", "cloglog", "loglog", "cauchy"}, 1)[:1]
 	}
-	fmt.Fprintf(&b, "models:\n  approaches: %s\n  levels: %s\n  links: %s\n", yamlList(approaches), yamlList(levels), yamlList(links))
+	fmt.Fprintf(&b, "models:\n  approaches: %s\n  effects: %s\n  links: %s\n", yamlList(approaches), yamlList(effects), yamlList(links))
 	if slices.Contains(approaches, "stage") && rng.IntN(3) == 0 {
 		b.WriteString("  direction: backward\n")
 	}
-	if slices.Contains(levels, "partial") || slices.Contains(levels, "constrained") {
+	if slices.Contains(effects, "partial") || slices.Contains(effects, "constrained") {
 		if rng.IntN(4) == 0 {
 			b.WriteString("  partial:\n    select: {method: stepwise, alpha: 0.05, test: wald}\n")
 		} else {
@@ -236,14 +236,14 @@ func (c *propCase) randomPlan(rng *rand.Rand, id int) string {
 	if slices.Contains(approaches, "cumulative") && rng.IntN(2) == 0 {
 		b.WriteString("  - reject_negative_probabilities: true\n")
 	}
-	if len(levels) > 1 && rng.IntN(2) == 0 {
+	if len(effects) > 1 && rng.IntN(2) == 0 {
 		test := []string{"lr", "wald", "score"}[rng.IntN(3)]
 		// Wald and score tests compare models linear in the parameters
 		// only; the plan check refuses them otherwise.
-		if slices.Contains(levels, "constrained") || slices.Contains(levels, "stereotype") {
+		if slices.Contains(effects, "constrained") || slices.Contains(effects, "stereotype") {
 			test = "lr"
 		}
-		if nested(levels) {
+		if nested(effects) {
 			fmt.Fprintf(&b, "  - reject_if_test_rejects: {test: %s, alpha: 0.05, against: each_less_constrained}\n", test)
 		}
 	}
@@ -498,9 +498,9 @@ func TestPropertyRandomPlans(t *testing.T) {
 	}
 }
 
-// nested reports whether some model of the levels is nested in another.
-func nested(levels []string) bool {
-	has := func(l string) bool { return slices.Contains(levels, l) }
-	return has("parallel") && len(levels) > 1 || has("constrained") && (has("partial") || has("nonparallel")) ||
+// nested reports whether some model of the effects is nested in another.
+func nested(effects []string) bool {
+	has := func(l string) bool { return slices.Contains(effects, l) }
+	return has("parallel") && len(effects) > 1 || has("constrained") && (has("partial") || has("nonparallel")) ||
 		has("partial") && has("nonparallel") || has("stereotype") && has("nonparallel")
 }

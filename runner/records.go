@@ -76,15 +76,15 @@ type OutcomeDecisions struct {
 
 // FreeSetRecord is a partial set in JSON.
 type FreeSetRecord struct {
-	Approach   string   `json:"approach"`
-	Predictors []string `json:"predictors"`
-	Source     string   `json:"source"`
+	Approach   fit.Comparison `json:"approach"`
+	Predictors []string       `json:"predictors"`
+	Source     string         `json:"source"`
 }
 
 // StepwiseJSON is one stepwise selection in JSON.
 type StepwiseJSON struct {
-	Approach string              `json:"approach"`
-	Link     string              `json:"link"`
+	Approach fit.Comparison      `json:"approach"`
+	Link     fit.Link            `json:"link"`
 	Result   *fit.StepwiseResult `json:"result"`
 }
 
@@ -100,11 +100,11 @@ type FitDecision struct {
 
 // TestBlockJSON is a test block in JSON.
 type TestBlockJSON struct {
-	Approach    string       `json:"approach"`
-	Link        string       `json:"link"`
-	Global      []fit.Test   `json:"parallel_lines"`
-	PerVariable []VarTests   `json:"per_variable"`
-	Nested      []NestedTest `json:"nested_lr"`
+	Approach    fit.Comparison `json:"approach"`
+	Link        fit.Link       `json:"link"`
+	Global      []fit.Test     `json:"parallel_lines"`
+	PerVariable []VarTests     `json:"per_variable"`
+	Nested      []NestedTest   `json:"nested_lr"`
 }
 
 // RuleJSON is one rule's outcome in JSON.
@@ -124,7 +124,7 @@ func BuildDecisions(r *Result) *Decisions {
 		NewRows: newRowsRef(r),
 		Notes:   nonNil(r.Notes), Registration: registrationRecord(r.Registration), Simulated: r.Simulated}
 	for _, or := range r.Outcomes {
-		od := OutcomeDecisions{Outcome: or.Outcome.Column, Categories: or.Data.Levels, Counts: or.Data.Counts,
+		od := OutcomeDecisions{Outcome: or.Outcome.Column, Categories: or.Data.Categories, Counts: or.Data.Counts,
 			RowsRead: or.Data.RowsRead, RowsUsed: or.Data.N, Dropped: nonNilDrops(or.Data.Dropped), NObs: or.Data.NObs(),
 			Choice: or.Choice, Fallback: or.Fallback, Notes: nonNil(or.Notes), Final: map[string]Verdict{}}
 		if or.Design != nil && !or.Design.Trivial() {

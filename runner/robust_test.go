@@ -9,10 +9,11 @@ import (
 	"testing"
 
 	"ordplan/plan"
+	"ordplan/runner/fit"
 )
 
 // Cluster-robust errors on the invented example data (clusters: district),
-// and probability weights, which turn likelihood-ratio tests into Wald
+// and sampling weights, which turn likelihood-ratio tests into Wald
 // tests and say so.
 func TestRunRobustAndProbabilityWeights(t *testing.T) {
 	dir := t.TempDir()
@@ -28,16 +29,16 @@ func TestRunRobustAndProbabilityWeights(t *testing.T) {
 	}
 	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
 	base := `version: 1
-title: robust
+title: sandwich
 data: {file: d.csv, cluster: district%s}
 outcomes: [{column: safety, categories: [very_unsafe, unsafe, neutral, safe, very_safe]}]
 predictors: [pilot, female, age]
-models: {approaches: [cumulative], levels: [parallel, partial, nonparallel], partial: {free: [pilot]}}
+models: {approaches: [cumulative], effects: [parallel, partial, nonparallel], partial: {free: [pilot]}}
 tests: {parallel_lines: [brant, lr, wald]}
 rules:
   - reject_if_test_rejects: {test: lr, alpha: 0.05}
   - choose: {by: bic}
-covariance: cluster
+covariance: clustered
 `
 	run := func(extra string) *OutcomeResult {
 		os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(strings.Replace(base, "%s", extra, 1)), 0o644)
@@ -53,7 +54,7 @@ covariance: cluster
 	}
 	or := run("")
 	f := or.Find("cumulative/partial/logit")
-	if f.Result.CovType != "cluster" {
+	if f.Result.CovType != fit.Clustered {
 		t.Fatalf("covariance %s", f.Result.CovType)
 	}
 	if findTest(or.Tests[0].Global, "lr").OK != true {
@@ -61,17 +62,17 @@ covariance: cluster
 	}
 	// With sampling weights the plan's LR rule and BIC choice are refused,
 	// naming the comparisons; the Wald rule and TIC run.
-	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(strings.Replace(base, "%s", ", weights: sw, weight_kind: probability", 1)), 0o644)
+	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(strings.Replace(base, "%s", ", weights: sw, weight_kind: sampling", 1)), 0o644)
 	_, err = plan.Load(filepath.Join(dir, "p.yaml"))
 	if err == nil || !strings.Contains(err.Error(), "p.yaml:9:36: rules[0].reject_if_test_rejects.test: the likelihood-ratio test is not defined for 2 of the 2 comparisons") ||
 		!strings.Contains(err.Error(), "p.yaml:10:18: rules[1].choose.by: by: bic assumes a likelihood") {
 		t.Fatalf("sampling weights with lr and bic: %v", err)
 	}
 	base = strings.Replace(strings.Replace(base, "{test: lr,", "{test: wald,", 1), "{by: bic}", "{by: tic}", 1)
-	or = run(", weights: sw, weight_kind: probability")
+	or = run(", weights: sw, weight_kind: sampling")
 	lr := findTest(or.Tests[0].Global, "lr")
 	if lr.OK || !strings.Contains(lr.Reason, "pseudo-likelihood") {
-		t.Errorf("LR with probability weights: %+v", lr)
+		t.Errorf("LR with sampling weights: %+v", lr)
 	}
 	if w := findTest(or.Tests[0].Global, "wald"); !w.OK {
 		t.Errorf("Wald should be computed: %+v", w)
@@ -98,7 +99,7 @@ title: stepwise
 data: {file: d.csv%s}
 outcomes: [{column: safety, categories: [very_unsafe, unsafe, neutral, safe, very_safe]}]
 predictors: [pilot, female, age]
-models: {approaches: [cumulative], levels: [parallel, partial], partial: {select: {method: stepwise, alpha: 0.05}}}
+models: {approaches: [cumulative], effects: [parallel, partial], partial: {select: {method: stepwise, alpha: 0.05}}}
 tests: {parallel_lines: []}
 rules:
   - choose: {by: bic}
@@ -115,8 +116,8 @@ rules:
 		}
 		return r.Outcomes[0].Stepwise[0].Result.Steps[0].Tests[0].Chi2
 	}
-	oim, cl := chi("", ""), chi(", cluster: district", "covariance: cluster\n")
-	if oim == cl || oim <= 0 || cl <= 0 {
-		t.Fatalf("stepwise chi2 with OIM %v and cluster %v", oim, cl)
+	obs, cl := chi("", ""), chi(", cluster: district", "covariance: clustered\n")
+	if obs == cl || obs <= 0 || cl <= 0 {
+		t.Fatalf("stepwise chi2 with observed information %v and clustered %v", obs, cl)
 	}
 }

@@ -3,6 +3,7 @@ package runner
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strings"
 
@@ -25,7 +26,7 @@ type ruleEnv struct {
 	// tic gives a fit's TIC and its penalty tr(A^-1 B).
 	tic func(f *FitEntry) (float64, float64, error)
 	// test computes the named test of restricted against full.
-	test func(kind string, restricted, full *FitEntry) fit.Test
+	test func(kind fit.TestKind, restricted, full *FitEntry) fit.Test
 	// labels gives, for each row used, the value of a data column.
 	labels func(col string) ([]string, error)
 
@@ -40,8 +41,8 @@ func newRuleEnv(p *plan.Plan, or *OutcomeResult) *ruleEnv {
 		return fit.TIC(or.FitData, f.Result, p.Data.Sampling())
 	}
 	var brant *fit.BrantResult
-	env.test = func(kind string, f, full *FitEntry) fit.Test {
-		if kind == "brant" && brant == nil {
+	env.test = func(kind fit.TestKind, f, full *FitEntry) fit.Test {
+		if kind == fit.TestBrant && brant == nil {
 			brant = fit.Brant(or.FitData, fit.Options{Workers: 1})
 		}
 		return pairTest(kind, or.FitData, brant, f, full)
@@ -121,9 +122,9 @@ func DescribeRule(p *plan.Plan, r plan.Rule) string {
 			plan.AgainstNext:  "the next less constrained model of its approach and link",
 			plan.AgainstEach:  "each less constrained model of its approach and link in turn (rejected if any test rejects)",
 		}[r.Against]
-		s := fmt.Sprintf("Reject a model when the %s test against %s rejects it at alpha = %g.", plan.TestName(r.Test), against, r.Alpha)
+		s := fmt.Sprintf("Reject a model when the %s test against %s rejects it at alpha = %g.", r.Test.Title(), against, r.Alpha)
 		if r.AppliesTo != nil {
-			s += " Only models with " + strings.Join(r.AppliesTo, " or ") + " effects are tested."
+			s += " Only models with " + strings.Join(wordsOf(r.AppliesTo), " or ") + " effects are tested."
 		}
 		s += " A model whose comparison model has no usable fit is kept, untested, and the log says so."
 		return s
@@ -240,29 +241,29 @@ func (env *ruleEnv) judge(r plan.Rule, f *FitEntry, alive []*FitEntry) (bool, st
 
 // gridEffects is the plan's Models restricted to the candidate effects of
 // one approach and link that are in the grid of fits.
-func (env *ruleEnv) gridEffects(approach, link string) plan.Models {
+func (env *ruleEnv) gridEffects(approach fit.Comparison, link fit.Link) plan.Models {
 	m := env.p.Models
-	m.Levels = nil
+	m.Effects = nil
 	for _, f := range env.or.Fits {
 		if !f.Auxiliary && f.Approach == approach && f.Link == link {
-			m.Levels = append(m.Levels, f.Level)
+			m.Effects = append(m.Effects, f.Effects)
 		}
 	}
 	return m
 }
 
 func (env *ruleEnv) judgeTest(r plan.Rule, f *FitEntry) (bool, string) {
-	if r.AppliesTo != nil && !contains(r.AppliesTo, f.Level) {
-		return true, fmt.Sprintf("not tested: the rule applies only to %s effects", strings.Join(r.AppliesTo, ", "))
+	if r.AppliesTo != nil && !slices.Contains(r.AppliesTo, f.Effects) {
+		return true, fmt.Sprintf("not tested: the rule applies only to %s effects", strings.Join(wordsOf(r.AppliesTo), ", "))
 	}
-	targets := r.TestTargets(env.gridEffects(f.Approach, f.Link), f.Approach, f.Level)
+	targets := r.TestTargets(env.gridEffects(f.Approach, f.Link), f.Approach, f.Effects)
 	if len(targets) == 0 {
 		return true, "no less constrained model of this approach and link in the grid"
 	}
 	var parts []string
 	rejected := false
 	for _, t := range targets {
-		full := env.or.Find(f.Approach + "/" + t + "/" + f.Link)
+		full := env.or.Cell(f.Approach, t, f.Link)
 		if !full.OK() {
 			status := "not fitted"
 			if full != nil && full.Result != nil {
@@ -270,10 +271,10 @@ func (env *ruleEnv) judgeTest(r plan.Rule, f *FitEntry) (bool, string) {
 			} else if full != nil && full.Err != "" {
 				status = full.Err
 			}
-			parts = append(parts, fmt.Sprintf("not tested against %s: it has no usable fit (%s)", full.idOr(f.Approach+"/"+t+"/"+f.Link), status))
+			parts = append(parts, fmt.Sprintf("not tested against %s: it has no usable fit (%s)", full.idOr(fit.ModelID(f.Result.Model.ComparisonName(), t.String(), f.Link)), status))
 			continue
 		}
-		if ok, why := plan.TestDefined(r.Test, f.Approach, f.Link, f.Level, t, env.p.Data.Sampling()); !ok {
+		if ok, why := plan.TestDefined(r.Test, f.Approach, f.Link, f.Effects, t, env.p.Data.Sampling()); !ok {
 			// The plan check refuses such rules; this guards a plan built
 			// in code.
 			parts = append(parts, fmt.Sprintf("not tested against %s: %s", full.ID, why))
@@ -281,10 +282,10 @@ func (env *ruleEnv) judgeTest(r plan.Rule, f *FitEntry) (bool, string) {
 		}
 		tt := env.test(r.Test, f, full)
 		if !tt.OK {
-			parts = append(parts, fmt.Sprintf("the %s test against %s cannot be computed (%s)", plan.TestName(r.Test), full.ID, tt.Reason))
+			parts = append(parts, fmt.Sprintf("the %s test against %s cannot be computed (%s)", r.Test.Title(), full.ID, tt.Reason))
 			continue
 		}
-		s := fmt.Sprintf("%s test against %s: chi2(%d) = %s, %s", plan.TestName(r.Test), full.ID, tt.DF, numfmt.Stat(tt.Chi2), pText(tt.P, r.Alpha))
+		s := fmt.Sprintf("%s test against %s: chi2(%d) = %s, %s", r.Test.Title(), full.ID, tt.DF, numfmt.Stat(tt.Chi2), pText(tt.P, r.Alpha))
 		if tt.P < r.Alpha {
 			s += fmt.Sprintf(" < alpha %g", r.Alpha)
 			rejected = true
@@ -313,20 +314,20 @@ func (f *FitEntry) idOr(id string) string {
 	return f.ID
 }
 
-func contains(xs []string, x string) bool {
-	for _, y := range xs {
-		if y == x {
-			return true
-		}
+// wordsOf gives the words of vocabulary values.
+func wordsOf[T fmt.Stringer](xs []T) []string {
+	out := make([]string, len(xs))
+	for i, x := range xs {
+		out[i] = x.String()
 	}
-	return false
+	return out
 }
 
 // pairTest computes the named test of restricted against full; the plan
 // check has made sure it is defined for the pair.
-func pairTest(kind string, d *fit.Data, brant *fit.BrantResult, f, full *FitEntry) fit.Test {
+func pairTest(kind fit.TestKind, d *fit.Data, brant *fit.BrantResult, f, full *FitEntry) fit.Test {
 	switch kind {
-	case "wald":
+	case fit.TestWald:
 		var vars []string
 		for k, e := range full.Result.Model.Effects {
 			if e == fit.Nonparallel && f.Result.Model.Effects[k] == fit.Parallel {
@@ -334,21 +335,21 @@ func pairTest(kind string, d *fit.Data, brant *fit.BrantResult, f, full *FitEntr
 			}
 		}
 		return fit.WaldEqualSlopes(full.Result, vars)
-	case "score":
+	case fit.TestScore:
 		return fit.ScoreTest(d, f.Result, full.Result.Model)
-	case "brant":
+	case fit.TestBrant:
 		if brant == nil || !brant.OK {
 			reason := "not computed"
 			if brant != nil {
 				reason = brant.Reason
 			}
-			return missingTest("brant", reason)
+			return missingTest(fit.TestBrant, reason)
 		}
 		return brant.Omnibus
-	case "lr":
+	case fit.TestLR:
 		return fit.LRTest(f.Result, full.Result)
 	}
-	return missingTest(kind, "unknown test")
+	return missingTest(kind, "not a test between two models")
 }
 
 // judgeClose rejects a model when a simpler kept model of its approach and
@@ -356,7 +357,7 @@ func pairTest(kind string, d *fit.Data, brant *fit.BrantResult, f, full *FitEntr
 func (env *ruleEnv) judgeClose(r plan.Rule, f *FitEntry, alive []*FitEntry) (bool, string) {
 	var simpler []*FitEntry
 	for _, s := range alive {
-		if s != f && s.Approach == f.Approach && s.Link == f.Link && s.OK() && contains(lessConstrainedOf(s.Level), f.Level) {
+		if s != f && s.Approach == f.Approach && s.Link == f.Link && s.OK() && slices.Contains(lessConstrainedOf(s.Effects), f.Effects) {
 			simpler = append(simpler, s)
 		}
 	}
@@ -386,7 +387,7 @@ func (env *ruleEnv) judgeClose(r plan.Rule, f *FitEntry, alive []*FitEntry) (boo
 				best, at = d, i
 			}
 		}
-		cat := env.or.FitData.Levels
+		cat := env.or.FitData.Categories
 		label := fmt.Sprint(at%J + 1)
 		if len(cat) == J {
 			label = cat[at%J]
@@ -403,9 +404,9 @@ func (env *ruleEnv) judgeClose(r plan.Rule, f *FitEntry, alive []*FitEntry) (boo
 	return !close, strings.Join(parts, "; ")
 }
 
-func lessConstrainedOf(e string) []string {
-	m := plan.Models{Levels: []string{LevelParallel, LevelConstrained, LevelPartial, LevelStereotype, LevelNonparallel}}
-	return plan.Rule{Against: plan.AgainstEach}.TestTargets(m, "adjacent", e)
+func lessConstrainedOf(e fit.Structure) []fit.Structure {
+	m := plan.Models{Effects: fit.StructureWords.All()}
+	return plan.Rule{Against: plan.AgainstEach}.TestTargets(m, fit.Adjacent, e)
 }
 
 // pointSet names the points predictions are compared at.
@@ -526,7 +527,7 @@ func (env *ruleEnv) judgeSparse(r plan.Rule, f *FitEntry) (bool, string) {
 func (env *ruleEnv) smallestCategory(r plan.Rule, f *FitEntry) (string, bool) {
 	or := env.or
 	ds := or.Data
-	levels := ds.Levels
+	levels := ds.Categories
 	weight := func(i int) float64 {
 		if ds.Weights == nil || env.p.Data.Sampling() {
 			return 1
@@ -611,7 +612,7 @@ func (env *ruleEnv) columnsReading(col string) []string {
 	}
 	var out []string
 	for k, t := range dz.Terms {
-		if contains(dz.TermSources(k), col) {
+		if slices.Contains(dz.TermSources(k), col) {
 			out = append(out, t.Columns...)
 		}
 	}

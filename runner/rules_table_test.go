@@ -32,8 +32,8 @@ type handFit struct {
 // handOutcome builds an outcome result over a data set of the given
 // categories (y, one per row) and predictor x.
 func handOutcome(fits []handFit, y []int, x []float64) *OutcomeResult {
-	levels := []string{"low", "mid", "high"}
-	ds := &data.Dataset{Outcome: "y", Levels: levels, Y: y, Predictors: []string{"x"}, X: x, N: len(y), K: 1}
+	categories := []string{"low", "mid", "high"}
+	ds := &data.Dataset{Outcome: "y", Categories: categories, Y: y, Predictors: []string{"x"}, X: x, N: len(y), K: 1}
 	for i := range y {
 		ds.Lines = append(ds.Lines, i+2)
 	}
@@ -44,7 +44,10 @@ func handOutcome(fits []handFit, y []int, x []float64) *OutcomeResult {
 	}
 	or := &OutcomeResult{Outcome: plan.Outcome{Column: "y"}, Data: ds, FitData: fd, Design: dz}
 	for _, h := range fits {
-		a, e, l, _ := plan.ParseModelID(h.id)
+		aw, ew, lw, _ := plan.ParseModelID(h.id)
+		a, _ := fit.ComparisonWords.Parse(aw)
+		e, _ := fit.StructureWords.Parse(ew)
+		l, _ := fit.LinkWords.Parse(lw)
 		res := &fit.Result{Name: h.id, Status: h.status, NParams: h.nparams, AIC: h.aic, BIC: h.bic, LogLik: -h.aic/2 + float64(h.nparams),
 			Condition: h.cond, NRows: len(y), NObs: float64(len(y)), Predictors: []string{"x"}, J: 3, StartsAgreeing: h.agree}
 		if h.status == "" {
@@ -57,7 +60,7 @@ func handOutcome(fits []handFit, y []int, x []float64) *OutcomeResult {
 		for i := 0; i < h.starts; i++ {
 			res.Starts = append(res.Starts, fit.StartRecord{})
 		}
-		or.Fits = append(or.Fits, &FitEntry{ID: h.id, Approach: a, Level: e, Link: l, Result: res})
+		or.Fits = append(or.Fits, &FitEntry{ID: h.id, Approach: a, Effects: e, Link: l, Result: res})
 	}
 	return or
 }
@@ -65,7 +68,7 @@ func handOutcome(fits []handFit, y []int, x []float64) *OutcomeResult {
 // handPlan parses a plan whose rules are given; models lists the effects.
 func handPlan(t *testing.T, effects, rules string) *plan.Plan {
 	t.Helper()
-	src := fmt.Sprintf("version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [x, z]\nmodels:\n  approaches: [cumulative]\n  levels: %s\n  partial: {free: [x]}\nrules:\n%s", effects, rules)
+	src := fmt.Sprintf("version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [x, z]\nmodels:\n  approaches: [cumulative]\n  effects: %s\n  partial: {free: [x]}\nrules:\n%s", effects, rules)
 	if !strings.Contains(effects, "partial") && !strings.Contains(effects, "constrained") {
 		src = strings.Replace(src, "  partial: {free: [x]}\n", "", 1)
 	}
@@ -158,7 +161,9 @@ func TestTableTestRule(t *testing.T) {
 			p := handPlan(t, "[parallel, partial, nonparallel]", fmt.Sprintf("  - reject_if_test_rejects: {test: lr, alpha: 0.05, against: %s}\n  - choose: {by: aic}\n", c.against))
 			or := handOutcome(c.fits, []int{0, 1, 2}, []float64{0, 1, 2})
 			env := newRuleEnv(p, or)
-			env.test = func(kind string, f, full *FitEntry) fit.Test { return tests[f.Level+"|"+full.Level] }
+			env.test = func(kind fit.TestKind, f, full *FitEntry) fit.Test {
+				return tests[f.Effects.String()+"|"+full.Effects.String()]
+			}
 			env.apply()
 			wantLines(t, verdictLines(or, 0), c.want)
 		})
@@ -288,7 +293,7 @@ func TestTableSimplerIsClose(t *testing.T) {
 				if len(X) != 3 || X[0] != 0 || X[1] != 1 || X[2] != 2 {
 					return nil, fmt.Errorf("unexpected points %v", X)
 				}
-				return probs[f.Level], nil
+				return probs[f.Effects.String()], nil
 			}
 			env.apply()
 			wantLines(t, verdictLines(or, 0), c.want)

@@ -12,6 +12,7 @@ import (
 	"testing"
 
 	"ordplan/plan"
+	"ordplan/runner/fit"
 )
 
 func verdictOf(ro *RuleOutcome, id string) *Verdict {
@@ -97,7 +98,7 @@ func TestRuleRejectIfTestRejects(t *testing.T) {
 	if !strings.Contains(lr.Description, "the least constrained model of its approach and link") {
 		t.Errorf("description: %s", lr.Description)
 	}
-	if least.Chosen == nil || least.Chosen.Level == LevelParallel {
+	if least.Chosen == nil || least.Chosen.Effects == fit.ParallelEffects {
 		t.Errorf("chosen %v", least.Chosen)
 	}
 	if v := verdictOf(ro, "cumulative/nonparallel/logit"); v == nil || !v.Kept {
@@ -145,7 +146,7 @@ title: crossing
 data: {file: cross.csv}
 outcomes: [{column: y}]
 predictors: [x]
-models: {approaches: [cumulative, stage], levels: [parallel, nonparallel]}
+models: {approaches: [cumulative, stage], effects: [parallel, nonparallel]}
 tests: {parallel_lines: []}
 rules:
   - reject_negative_probabilities: true

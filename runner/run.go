@@ -25,9 +25,6 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 	if opt.Workers <= 0 {
 		opt.Workers = runtime.GOMAXPROCS(0)
 	}
-	if err := supported(p); err != nil {
-		return nil, err
-	}
 	// The data file (and the new-rows file) are read once: every reader
 	// during the run parses the bytes whose hash the run records.
 	dataHash, unpin, err := data.Pin(p.Data.Path)
@@ -51,9 +48,9 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 	if p.Report.Timestamp {
 		res.Started = time.Now().UTC().Format(time.RFC3339)
 	}
-	res.Notes = append(res.Notes, fmt.Sprintf("Standard errors from the %s.", covarianceName(covarianceOf(p))))
-	if probabilityWeights(p) {
-		res.Notes = append(res.Notes, "The weights are probability (sampling) weights: the fits maximize a pseudo-likelihood, standard errors are sandwich estimates, likelihood-ratio, score and Brant tests are not valid (the plan's test rules use Wald tests, and its choice uses TIC), and AIC/BIC are descriptive only.")
+	res.Notes = append(res.Notes, fmt.Sprintf("Standard errors from the %s.", covarianceOf(p).Describe()))
+	if samplingWeights(p) {
+		res.Notes = append(res.Notes, "The weights are sampling weights: the fits maximize a pseudo-likelihood, standard errors are sandwich estimates, likelihood-ratio, score and Brant tests are not valid (the plan's test rules use Wald tests, and its choice uses TIC), and AIC/BIC are descriptive only.")
 	}
 	for _, oc := range p.Outcomes {
 		or, err := runOutcome(p, oc, opt, res.DataHash)
@@ -66,45 +63,15 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 	return res, nil
 }
 
-// supported refuses plan settings this version cannot honour, instead of
-// silently ignoring them.
-func supported(p *plan.Plan) error {
-	switch p.Covariance {
-	case "", "oim", "eim", "robust", "robust_hc0", "cluster":
-	default:
-		return fmt.Errorf("%s: covariance: unknown type %q (want oim, eim, robust or cluster)", p.Path, p.Covariance)
-	}
-	if p.Covariance == "cluster" && p.Data.Cluster == "" {
-		return fmt.Errorf("%s: covariance: cluster needs data.cluster", p.Path)
-	}
-	return nil
-}
-
-func covarianceName(c string) string {
-	switch c {
-	case "eim":
-		return "expected information (Fisher scoring form)"
-	case "robust":
-		return "sandwich estimator A^-1 B A^-1 (A the observed information, B the outer product of the row scores), times N/(N-P) (HC1)"
-	case "robust_hc0":
-		return "sandwich estimator A^-1 B A^-1 (A the observed information, B the outer product of the row scores), without a small-sample factor (HC0)"
-	case "cluster":
-		return "cluster-robust sandwich estimator (scores summed within clusters), times G/(G-1) (N-1)/(N-P) with G clusters"
-	}
-	return "observed information (inverse of minus the Hessian at the maximum)"
-}
-
-// probabilityWeights reports whether the plan's weights are sampling
+// samplingWeights reports whether the plan's weights are sampling
 // weights: the likelihood is then a pseudo-likelihood.
-func probabilityWeights(p *plan.Plan) bool {
-	return p.Data.Weights != "" && p.Data.WeightKind == "probability"
-}
+func samplingWeights(p *plan.Plan) bool { return p.Data.Sampling() }
 
-// covarianceOf is the covariance a plan's fits use: probability weights
-// imply the sandwich.
-func covarianceOf(p *plan.Plan) string {
-	if probabilityWeights(p) && p.Covariance != "cluster" && p.Covariance != "robust_hc0" {
-		return "robust"
+// covarianceOf is the covariance a plan's fits use: sampling weights imply
+// a sandwich estimate.
+func covarianceOf(p *plan.Plan) fit.Covariance {
+	if samplingWeights(p) && !p.Covariance.IsSandwich() {
+		return fit.Sandwich
 	}
 	return p.Covariance
 }
@@ -119,12 +86,12 @@ func runOutcome(p *plan.Plan, oc plan.Outcome, opt Options, dataHash string) (*O
 	if err := fit.CheckDesign(or.FitData); err != nil {
 		return nil, fmt.Errorf("%s: outcome %q: %v", p.Data.File, oc.Column, err)
 	}
-	fopt := fit.Options{Covariance: p.Covariance, Workers: 1}
-	if fopt.Covariance != "eim" {
-		fopt.Covariance = "oim"
+	fopt := fit.Options{Covariance: fit.Observed, Workers: 1}
+	if p.Covariance == fit.Expected {
+		fopt.Covariance = fit.Expected
 	}
 	links := p.Models.Links
-	backward := p.Models.Direction == "backward"
+	backward := p.Models.Backward()
 
 	// 1. The partial set of each approach: listed, or selected stepwise
 	// (with the plan's standard errors).
@@ -195,9 +162,7 @@ func freeSets(p *plan.Plan, terms []fit.Term, d *fit.Data, backward bool, fopt f
 			defer wg.Done()
 			sem <- struct{}{}
 			defer func() { <-sem }()
-			c, _ := fit.ParseComparison(a)
-			l, _ := fit.ParseLink(link)
-			r := fit.StepwiseTerms(d, fit.Model{Comparison: c, Backward: backward && c == fit.Stage, Link: l}, terms, sel.Alpha, sel.Test, fopt)
+			r := fit.StepwiseTerms(d, fit.Model{Comparison: a, Backward: backward && a == fit.Stage, Link: link}, terms, sel.Alpha, sel.Test, fopt)
 			sw[i] = StepwiseRecord{Approach: a, Link: link, Result: r}
 		}()
 	}
@@ -212,7 +177,7 @@ func freeSets(p *plan.Plan, terms []fit.Term, d *fit.Data, backward bool, fopt f
 	return out, sw
 }
 
-func freeFor(sets []FreeSet, approach string) []string {
+func freeFor(sets []FreeSet, approach fit.Comparison) []string {
 	for _, s := range sets {
 		if s.Approach == approach {
 			return s.Predictors
@@ -242,26 +207,27 @@ func gridJobs(p *plan.Plan, terms []fit.Term, sets []FreeSet, backward bool) ([]
 	for _, a := range p.Models.Approaches {
 		freeTerms := freeFor(sets, a)
 		free := columnsOf(terms, freeTerms)
+		bw := backward && a == fit.Stage
 		for _, l := range p.Models.Links {
-			for _, lv := range p.Models.Levels {
-				id := a + "/" + lv + "/" + l
-				if lv == LevelStereotype && a != "adjacent" {
+			for _, s := range p.Models.Effects {
+				id := cellID(a, bw, s.String(), l)
+				if s == fit.StereotypeEffects && a != fit.Adjacent {
 					continue
 				}
-				if (lv == LevelPartial || lv == LevelConstrained) && len(free) == 0 {
-					notes = append(notes, fmt.Sprintf("%s not fitted: the partial set of the %s approach is empty, so the model equals %s/parallel/%s", id, a, a, l))
+				if (s == fit.PartialEffects || s == fit.ConstrainedEffects) && len(free) == 0 {
+					notes = append(notes, fmt.Sprintf("%s not fitted: the partial set of the %s approach is empty, so the model equals %s", id, a, cellID(a, bw, fit.ParallelEffects.String(), l)))
 					continue
 				}
-				if lv == LevelPartial && len(freeTerms) == len(terms) {
-					notes = append(notes, fmt.Sprintf("%s not fitted: every predictor is in the partial set, so the model equals %s/nonparallel/%s", id, a, l))
+				if s == fit.PartialEffects && len(freeTerms) == len(terms) {
+					notes = append(notes, fmt.Sprintf("%s not fitted: every predictor is in the partial set, so the model equals %s", id, cellID(a, bw, fit.NonparallelEffects.String(), l)))
 					continue
 				}
 				g := groups
-				if lv == LevelConstrained && (len(g) == 0 || p.Models.Partial.Select != nil) {
+				if s == fit.ConstrainedEffects && (len(g) == 0 || p.Models.Partial.Select != nil) {
 					g = []Group{{Predictors: free}}
 				}
-				spec, err := LevelSpec(a, backward && a == "stage", l, lv, cols, free, g)
-				e := &FitEntry{ID: id, Approach: a, Level: lv, Link: l, Spec: spec}
+				spec, err := EffectsSpec(a, bw, l, s, cols, free, g)
+				e := &FitEntry{ID: id, Approach: a, Effects: s, Link: l, Spec: spec}
 				if err != nil {
 					e.Err = err.Error()
 				}
@@ -270,20 +236,21 @@ func gridJobs(p *plan.Plan, terms []fit.Term, sets []FreeSet, backward bool) ([]
 		}
 	}
 	// Auxiliary fits for the parallel-lines tests.
-	needPer := slices.Contains(p.Tests.ParallelLines, "lr")
-	needGlobal := needPer || slices.Contains(p.Tests.ParallelLines, "wald") || slices.Contains(p.Tests.ParallelLines, "score")
+	needPer := slices.Contains(p.Tests.ParallelLines, fit.TestLR)
+	needGlobal := needPer || slices.Contains(p.Tests.ParallelLines, fit.TestWald) || slices.Contains(p.Tests.ParallelLines, fit.TestScore)
 	for _, a := range p.Models.Approaches {
+		bw := backward && a == fit.Stage
 		for _, l := range p.Models.Links {
 			if !needGlobal {
 				continue
 			}
-			for _, lv := range []string{LevelParallel, LevelNonparallel} {
-				id := a + "/" + lv + "/" + l
+			for _, s := range []fit.Structure{fit.ParallelEffects, fit.NonparallelEffects} {
+				id := cellID(a, bw, s.String(), l)
 				if have[id] {
 					continue
 				}
-				spec, _ := LevelSpec(a, backward && a == "stage", l, lv, cols, nil, nil)
-				add(&FitEntry{ID: id, Approach: a, Level: lv, Link: l, Spec: spec, Auxiliary: true})
+				spec, _ := EffectsSpec(a, bw, l, s, cols, nil, nil)
+				add(&FitEntry{ID: id, Approach: a, Effects: s, Link: l, Spec: spec, Auxiliary: true})
 			}
 			if !needPer || len(terms) < 2 {
 				continue
@@ -295,16 +262,18 @@ func gridJobs(p *plan.Plan, terms []fit.Term, sets []FreeSet, backward bool) ([]
 						np = append(np, q.Columns...)
 					}
 				}
-				spec := Spec{Approach: a, Backward: backward && a == "stage", Link: l, Predictors: cols, Nonparallel: np}
-				add(&FitEntry{ID: auxID(a, t.Name, l), Approach: a, Level: "only-" + t.Name + "-parallel", Link: l, Spec: spec, Auxiliary: true})
+				spec := Spec{Approach: a, Backward: bw, Link: l, Predictors: cols, Nonparallel: np}
+				add(&FitEntry{ID: cellID(a, bw, "only-"+t.Name+"-parallel", l), Approach: a, Effects: fit.PartialEffects, OnlyParallel: t.Name, Link: l, Spec: spec, Auxiliary: true})
 			}
 		}
 	}
 	return jobs, notes
 }
 
-func auxID(approach, pred, link string) string {
-	return approach + "/only-" + pred + "-parallel/" + link
+// cellID is the id of a fit of the grid: the model's name, with the
+// stage direction in the approach.
+func cellID(a fit.Comparison, backward bool, effects string, l fit.Link) string {
+	return fit.ModelID(fit.Model{Comparison: a, Backward: backward}.ComparisonName(), effects, l)
 }
 
 // runJobs fits every entry, several at once; results land in their entry,
@@ -355,20 +324,16 @@ func runJobs(jobs []*FitEntry, d *fit.Data, fopt fit.Options, opt Options, outco
 // sandwich, or nil when the plan uses model-based errors.
 func sandwichFor(p *plan.Plan, ds *data.Dataset, d *fit.Data) func(*fit.Result) error {
 	cov := covarianceOf(p)
-	if cov != "robust" && cov != "robust_hc0" && cov != "cluster" {
+	if !cov.IsSandwich() {
 		return nil
 	}
 	var clusters []string
-	if cov == "cluster" {
+	if cov == fit.Clustered {
 		clusters = ds.Cluster
 	}
-	prob := probabilityWeights(p)
+	sampling := samplingWeights(p)
 	return func(r *fit.Result) error {
-		sw := fit.Sandwich
-		if cov == "robust_hc0" {
-			sw = fit.SandwichHC0
-		}
-		V, info, err := sw(d, r, clusters, prob)
+		V, info, err := fit.SandwichEstimate(d, r, cov, clusters, sampling)
 		if err != nil {
 			return fmt.Errorf("%s: sandwich covariance: %w", r.Name, err)
 		}
@@ -381,6 +346,28 @@ func sandwichFor(p *plan.Plan, ds *data.Dataset, d *fit.Data) func(*fit.Result) 
 func (or *OutcomeResult) Find(id string) *FitEntry {
 	for _, f := range or.Fits {
 		if f.ID == id {
+			return f
+		}
+	}
+	return nil
+}
+
+// Cell returns the fit of the grid with the given approach, effect
+// structure and link (candidate or auxiliary), or nil.
+func (or *OutcomeResult) Cell(a fit.Comparison, s fit.Structure, l fit.Link) *FitEntry {
+	for _, f := range or.Fits {
+		if f.Approach == a && f.Effects == s && f.Link == l && f.OnlyParallel == "" {
+			return f
+		}
+	}
+	return nil
+}
+
+// OnlyParallel returns the auxiliary fit in which term is the one parallel
+// term, or nil.
+func (or *OutcomeResult) OnlyParallel(a fit.Comparison, term string, l fit.Link) *FitEntry {
+	for _, f := range or.Fits {
+		if f.Approach == a && f.Link == l && f.OnlyParallel == term {
 			return f
 		}
 	}

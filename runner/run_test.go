@@ -88,7 +88,7 @@ func TestRunReproducesReferenceTests(t *testing.T) {
 	or := r.Outcomes[0]
 	var cum *TestBlock
 	for _, tb := range or.Tests {
-		if tb.Approach == "cumulative" {
+		if tb.Approach == fit.Cumulative {
 			cum = tb
 		}
 	}
@@ -109,11 +109,11 @@ func TestRunReproducesReferenceTests(t *testing.T) {
 	for _, tb := range or.Tests {
 		var nested map[string]refChi2
 		switch tb.Approach {
-		case "cumulative":
+		case fit.Cumulative:
 			nested = ref.Cumulative.Nested
-		case "stage":
+		case fit.Stage:
 			json.Unmarshal(ref.Stage["nested_lr"], &nested)
-		case "adjacent":
+		case fit.Adjacent:
 			json.Unmarshal(ref.Adjacent["nested_lr"], &nested)
 		}
 		seen := 0
@@ -122,12 +122,12 @@ func TestRunReproducesReferenceTests(t *testing.T) {
 			key, ok := nestedKey[[2]string{lv(nt.Restricted), lv(nt.Full)}]
 			switch {
 			case ok:
-				wantChi2(t, tb.Approach+" nested "+key, nt.Test, nested[key])
+				wantChi2(t, tb.Approach.String()+" nested "+key, nt.Test, nested[key])
 				seen++
-			case tb.Approach == "adjacent" && lv(nt.Restricted) == "stereotype":
+			case tb.Approach == fit.Adjacent && lv(nt.Restricted) == "stereotype":
 				wantChi2(t, "stereotype vs nonparallel", nt.Test, ref.StereoNP)
 				seen++
-			case tb.Approach == "adjacent" && lv(nt.Full) == "stereotype":
+			case tb.Approach == fit.Adjacent && lv(nt.Full) == "stereotype":
 				wantChi2(t, "parallel vs stereotype", nt.Test, ref.ParStereo)
 				seen++
 			}
@@ -135,14 +135,14 @@ func TestRunReproducesReferenceTests(t *testing.T) {
 		if seen < 4 {
 			t.Errorf("%s: only %d nested tests checked", tb.Approach, seen)
 		}
-		if tb.Approach != "cumulative" {
+		if tb.Approach != fit.Cumulative {
 			var lr refChi2
 			raw := ref.Stage
-			if tb.Approach == "adjacent" {
+			if tb.Approach == fit.Adjacent {
 				raw = ref.Adjacent
 			}
 			json.Unmarshal(raw["lr_parallel_vs_nonparallel"], &lr)
-			wantChi2(t, tb.Approach+" lr", findTest(tb.Global, "lr"), lr)
+			wantChi2(t, tb.Approach.String()+" lr", findTest(tb.Global, "lr"), lr)
 		}
 	}
 	if or.Chosen == nil {
@@ -226,7 +226,7 @@ outcomes:
   - {column: warm}
   - {column: warm3, categories: [low, mid, high]}
 predictors: [yr89, male, age]
-models: {approaches: [cumulative, adjacent], levels: [parallel, nonparallel]}
+models: {approaches: [cumulative, adjacent], effects: [parallel, nonparallel]}
 tests: {parallel_lines: [lr]}
 rules:
   - reject_if_test_rejects: {test: lr}
@@ -240,7 +240,7 @@ rules:
 	if !bytes.Equal(a, c) {
 		t.Fatal("decisions differ between runs")
 	}
-	if len(r.Outcomes) != 2 || r.Outcomes[1].Data.Levels[2] != "high" || r.Outcomes[0].Chosen == nil || r.Outcomes[1].Chosen == nil {
+	if len(r.Outcomes) != 2 || r.Outcomes[1].Data.Categories[2] != "high" || r.Outcomes[0].Chosen == nil || r.Outcomes[1].Chosen == nil {
 		t.Fatalf("outcomes %d", len(r.Outcomes))
 	}
 	if r.Outcomes[1].Find("cumulative/parallel/logit").Result.J != 3 {

@@ -12,20 +12,20 @@ import (
 type SingleFit struct {
 	DataFile    string
 	Outcome     string
-	Levels      []string
+	Categories  []string
 	Predictors  []string     // term names (plain columns when Design is nil)
 	Design      *design.Spec // the terms, when any is not a plain numeric column
-	Approach    string
+	Approach    fit.Comparison
 	Backward    bool
-	Link        string
+	Link        fit.Link
 	Nonparallel []string
 	Groups      []Group
 	Weights     string
-	Probability bool // the weights are probability (sampling) weights
+	Sampling    bool // the weights are sampling weights
 	Offset      string
-	Cluster     string // cluster column for covariance "cluster"
+	Cluster     string // cluster column for clustered covariance
 	Refuse      bool
-	Covariance  string
+	Covariance  fit.Covariance
 	Workers     int
 }
 
@@ -38,7 +38,7 @@ func FitOne(s SingleFit) (*fit.Result, *data.Dataset, error) {
 		Nonparallel: s.Nonparallel, Groups: s.Groups}).Model(); err != nil {
 		return nil, nil, err
 	}
-	dopt := data.Options{Outcome: s.Outcome, Levels: s.Levels,
+	dopt := data.Options{Outcome: s.Outcome, Categories: s.Categories,
 		Weights: s.Weights, Offset: s.Offset, Cluster: s.Cluster, Refuse: s.Refuse}
 	for _, src := range dspec.Sources {
 		dopt.Predictors = append(dopt.Predictors, src.Name)
@@ -71,38 +71,29 @@ func FitOne(s SingleFit) (*fit.Result, *data.Dataset, error) {
 		return nil, ds, err
 	}
 	cov := s.Covariance
-	switch cov {
-	case "", fit.CovOIM, fit.CovEIM, fit.CovRobust, fit.CovRobustHC0, fit.CovCluster:
-	default:
-		return nil, ds, fmt.Errorf("unknown covariance %q (want oim, eim, robust, robust_hc0 or cluster)", cov)
+	if cov == fit.Clustered && s.Cluster == "" {
+		return nil, ds, fmt.Errorf("clustered covariance needs a cluster column (--cluster COL)")
 	}
-	if cov == fit.CovCluster && s.Cluster == "" {
-		return nil, ds, fmt.Errorf("covariance cluster needs a cluster column (--cluster COL)")
+	if s.Sampling && s.Weights == "" {
+		return nil, ds, fmt.Errorf("sampling weights need a weights column (--weights COL)")
 	}
-	if s.Probability && s.Weights == "" {
-		return nil, ds, fmt.Errorf("probability weights need a weights column (--weights COL)")
+	if s.Sampling && !cov.IsSandwich() {
+		cov = fit.Sandwich // pseudo-likelihood: sandwich errors
 	}
-	if s.Probability && cov != fit.CovCluster && cov != fit.CovRobustHC0 {
-		cov = fit.CovRobust // pseudo-likelihood: sandwich errors
-	}
-	fopt := fit.Options{Covariance: fit.CovOIM, Workers: s.Workers}
-	if cov == fit.CovEIM {
-		fopt.Covariance = fit.CovEIM
+	fopt := fit.Options{Covariance: fit.Observed, Workers: s.Workers}
+	if cov == fit.Expected {
+		fopt.Covariance = fit.Expected
 	}
 	res, err := fit.Fit(d, model, fopt)
 	if err != nil {
 		return nil, ds, fmt.Errorf("%s: %w", s.DataFile, err)
 	}
-	if (cov == fit.CovRobust || cov == fit.CovRobustHC0 || cov == fit.CovCluster) && res.OK() {
+	if cov.IsSandwich() && res.OK() {
 		var clusters []string
-		if cov == fit.CovCluster {
+		if cov == fit.Clustered {
 			clusters = ds.Cluster
 		}
-		sw := fit.Sandwich
-		if cov == fit.CovRobustHC0 {
-			sw = fit.SandwichHC0
-		}
-		V, info, err := sw(d, res, clusters, s.Probability)
+		V, info, err := fit.SandwichEstimate(d, res, cov, clusters, s.Sampling)
 		if err != nil {
 			return nil, ds, err
 		}
@@ -113,7 +104,7 @@ func FitOne(s SingleFit) (*fit.Result, *data.Dataset, error) {
 
 // FitData turns a loaded data set into fit input.
 func FitData(ds *data.Dataset) *fit.Data {
-	return &fit.Data{Y: ds.Y, J: len(ds.Levels), X: ds.X, Predictors: ds.Predictors, Levels: ds.Levels,
+	return &fit.Data{Y: ds.Y, J: len(ds.Categories), X: ds.X, Predictors: ds.Predictors, Categories: ds.Categories,
 		Weights: ds.Weights, Offset: ds.Offset}
 }
 

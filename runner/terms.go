@@ -17,7 +17,7 @@ import (
 // subset, weights, offset and cluster.
 func dataOptions(p *plan.Plan, oc plan.Outcome, spec design.Spec) data.Options {
 	dopt := data.Options{
-		Outcome: oc.Column, Levels: oc.Categories,
+		Outcome: oc.Column, Categories: oc.Categories,
 		Weights: p.Data.Weights, Offset: p.Data.Offset, Cluster: p.Data.Cluster,
 		Refuse: p.Data.Missing == "refuse", MissingTokens: p.Data.MissingValues,
 		Keep: p.Subset, ColumnMissing: columnMissing(p),
@@ -64,7 +64,7 @@ func buildDesign(spec design.Spec, ds *data.Dataset) (*design.Design, *fit.Data,
 	if err != nil {
 		return nil, nil, fmt.Errorf("data line %d: %v", ds.Lines[i], err)
 	}
-	d := &fit.Data{Y: ds.Y, J: len(ds.Levels), X: X, Predictors: dz.Columns, Levels: ds.Levels,
+	d := &fit.Data{Y: ds.Y, J: len(ds.Categories), X: X, Predictors: dz.Columns, Categories: ds.Categories,
 		Weights: ds.Weights, Offset: ds.Offset}
 	return dz, d, nil
 }

@@ -37,7 +37,7 @@ categorical:
 predictors: [infl, type, cont]
 models:
   approaches: [cumulative, stage, adjacent]
-  levels: [parallel, partial, constrained, nonparallel, stereotype]
+  effects: [parallel, partial, constrained, nonparallel, stereotype]
   links: [logit, probit, cloglog]
   partial: {free: [type]}
 tests: {parallel_lines: [lr, wald]}
@@ -111,7 +111,7 @@ func TestHousingFactorsReproduceDummyRecords(t *testing.T) {
 		}
 		for m, c := range ref.Cutpoints {
 			if !closeRel(res.Cutpoints[m], c, 1e-5) {
-				t.Errorf("%s: cut-point %d %.8g, reference %.8g", id, m+1, res.Cutpoints[m], c)
+				t.Errorf("%s: tau[%d] %.8g, reference %.8g", id, m+1, res.Cutpoints[m], c)
 			}
 		}
 		for dummy, slopes := range ref.Effects {
@@ -122,11 +122,9 @@ func TestHousingFactorsReproduceDummyRecords(t *testing.T) {
 				}
 			}
 		}
-		for name, se := range ref.SE {
+		for name, se := range refdata.ParamNames(ref.SE) {
 			ours := name
-			if strings.HasPrefix(name, "cut") {
-				ours = res.ParamNames[int(name[3]-'1')]
-			} else {
+			if !strings.HasPrefix(name, "tau[") {
 				base, rest, _ := strings.Cut(name, "[")
 				if col, ok := housingDummy[base]; ok {
 					ours = col
@@ -239,7 +237,7 @@ predictors:
   - {name: age, column: age, spline: {quantiles: [0.05, 0.35, 0.65, 0.95]}}
   - {name: dose, column: dose, log: {shift: 1}, centre: mean}
   - {interact: [treat, age]}
-models: {approaches: [cumulative], levels: [parallel, partial], partial: {free: [treat]}}
+models: {approaches: [cumulative], effects: [parallel, partial], partial: {free: [treat]}}
 tests: {parallel_lines: [wald, lr]}
 rules:
   - choose: {by: aic}
@@ -309,7 +307,7 @@ func TestCodingsAreOneModel(t *testing.T) {
 data: {file: hand.csv}
 outcomes: [{column: relief, categories: [none, slight, moderate, complete]}]
 predictors: [drug, east, south, west, age]
-models: {approaches: [cumulative], levels: [parallel]}
+models: {approaches: [cumulative], effects: [parallel]}
 tests: {parallel_lines: []}
 rules:
   - choose: {by: aic}
@@ -321,7 +319,7 @@ categorical:
   treat: {levels: [placebo, drug]}
   site: {levels: [north, east, south, west]}
 predictors: [treat, site, age]
-models: {approaches: [cumulative], levels: [parallel]}
+models: {approaches: [cumulative], effects: [parallel]}
 tests: {parallel_lines: []}
 rules:
   - choose: {by: aic}
@@ -387,7 +385,7 @@ func TestSourceEffectsAgainstFiniteDifferences(t *testing.T) {
 	}
 	find := func(pred, change string, j int) float64 {
 		for _, me := range ame {
-			if me.Predictor == pred && me.Change == change && me.Category == res.Levels[j] {
+			if me.Predictor == pred && me.Change == change && me.Category == res.Categories[j] {
 				return me.Effect
 			}
 		}
@@ -402,7 +400,7 @@ func TestSourceEffectsAgainstFiniteDifferences(t *testing.T) {
 		for j := 0; j < J; j++ {
 			fd := (up[j] - down[j]) / (2 * h)
 			if got := find(name, "per unit", j); math.Abs(got-fd) > 1e-7 {
-				t.Errorf("%s, category %s: marginal effect %.10g, central difference %.10g", name, res.Levels[j], got, fd)
+				t.Errorf("%s, category %s: marginal effect %.10g, central difference %.10g", name, res.Categories[j], got, fd)
 			}
 		}
 	}

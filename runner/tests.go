@@ -14,48 +14,48 @@ func resultOf(f *FitEntry) *fit.Result {
 	return f.Result
 }
 
-func missingTest(name, reason string) fit.Test {
-	return fit.Test{Name: name, Reason: reason}
+func missingTest(kind fit.TestKind, reason string) fit.Test {
+	return fit.Test{Name: kind.String(), Reason: reason}
 }
 
 // testBlock runs the parallel-lines tests the plan asks for and the nested
 // likelihood-ratio tests of one approach and link.
-func testBlock(p *plan.Plan, or *OutcomeResult, approach, link string, fopt fit.Options) *TestBlock {
+func testBlock(p *plan.Plan, or *OutcomeResult, approach fit.Comparison, link fit.Link, fopt fit.Options) *TestBlock {
 	tb := &TestBlock{Approach: approach, Link: link}
 	d := or.FitData
-	id := func(level string) string { return approach + "/" + level + "/" + link }
-	par, np := or.Find(id(LevelParallel)), or.Find(id(LevelNonparallel))
-	cumLogit := approach == "cumulative" && link == "logit"
-	pw := probabilityWeights(p)
+	cell := func(s fit.Structure) *FitEntry { return or.Cell(approach, s, link) }
+	par, np := cell(fit.ParallelEffects), cell(fit.NonparallelEffects)
+	cumLogit := approach == fit.Cumulative && link == fit.Logit
+	sw := samplingWeights(p)
 	var brant *fit.BrantResult
-	for _, name := range p.Tests.ParallelLines {
-		if pw && name != "wald" {
-			if name == "lr" || name == "score" || cumLogit {
-				tb.Global = append(tb.Global, missingTest(name, pseudoReason))
+	for _, kind := range p.Tests.ParallelLines {
+		if sw && kind != fit.TestWald {
+			if kind == fit.TestLR || kind == fit.TestScore || cumLogit {
+				tb.Global = append(tb.Global, missingTest(kind, pseudoReason))
 			}
 			continue
 		}
-		switch name {
-		case "lr":
+		switch kind {
+		case fit.TestLR:
 			tb.Global = append(tb.Global, lrOf(par, np))
-		case "score":
+		case fit.TestScore:
 			tb.Global = append(tb.Global, scoreOf(d, par, np))
-		case "wald":
+		case fit.TestWald:
 			if np.OK() {
 				tb.Global = append(tb.Global, fit.WaldEqualSlopes(np.Result, allColumns(or.Terms)))
 			} else {
-				tb.Global = append(tb.Global, missingTest("wald", "the nonparallel model has no usable fit"))
+				tb.Global = append(tb.Global, missingTest(fit.TestWald, "the nonparallel model has no usable fit"))
 			}
-		case "brant":
+		case fit.TestBrant:
 			if cumLogit {
 				brant = fit.Brant(d, fopt)
 				t := brant.Omnibus
 				if !brant.OK {
-					t = missingTest("brant", brant.Reason)
+					t = missingTest(fit.TestBrant, brant.Reason)
 				}
 				tb.Global = append(tb.Global, t)
 			}
-		case "wolfe_gould":
+		case fit.TestWolfeGould:
 			if cumLogit {
 				tb.Global = append(tb.Global, fit.WolfeGould(d, fopt))
 			}
@@ -64,26 +64,26 @@ func testBlock(p *plan.Plan, or *OutcomeResult, approach, link string, fopt fit.
 	for _, term := range or.Terms {
 		pred := term.Name
 		vt := VarTests{Predictor: pred}
-		for _, name := range p.Tests.ParallelLines {
-			if pw && name != "wald" {
+		for _, kind := range p.Tests.ParallelLines {
+			if sw && kind != fit.TestWald {
 				continue
 			}
-			switch name {
-			case "brant":
+			switch kind {
+			case fit.TestBrant:
 				if brant != nil && brant.OK {
 					vt.Tests = append(vt.Tests, brantTerm(brant, d, term))
 				}
-			case "wald":
+			case fit.TestWald:
 				if np.OK() {
 					vt.Tests = append(vt.Tests, fit.WaldEqualSlopes(np.Result, term.Columns))
 				}
-			case "lr":
+			case fit.TestLR:
 				if len(or.Terms) > 1 {
-					vt.Tests = append(vt.Tests, lrOf(or.Find(auxID(approach, pred, link)), np))
+					vt.Tests = append(vt.Tests, lrOf(or.OnlyParallel(approach, pred, link), np))
 				} else {
 					vt.Tests = append(vt.Tests, lrOf(par, np))
 				}
-			case "score":
+			case fit.TestScore:
 				if par.OK() {
 					spec := par.Spec
 					spec.Nonparallel = term.Columns
@@ -97,19 +97,19 @@ func testBlock(p *plan.Plan, or *OutcomeResult, approach, link string, fopt fit.
 			tb.PerVariable = append(tb.PerVariable, vt)
 		}
 	}
-	pairs := [][2]string{
-		{LevelParallel, LevelConstrained}, {LevelConstrained, LevelPartial}, {LevelParallel, LevelPartial},
-		{LevelPartial, LevelNonparallel}, {LevelParallel, LevelNonparallel},
-		{LevelParallel, LevelStereotype}, {LevelStereotype, LevelNonparallel},
+	pairs := [][2]fit.Structure{
+		{fit.ParallelEffects, fit.ConstrainedEffects}, {fit.ConstrainedEffects, fit.PartialEffects}, {fit.ParallelEffects, fit.PartialEffects},
+		{fit.PartialEffects, fit.NonparallelEffects}, {fit.ParallelEffects, fit.NonparallelEffects},
+		{fit.ParallelEffects, fit.StereotypeEffects}, {fit.StereotypeEffects, fit.NonparallelEffects},
 	}
 	for _, pr := range pairs {
-		r, f := or.Find(id(pr[0])), or.Find(id(pr[1]))
+		r, f := cell(pr[0]), cell(pr[1])
 		if r == nil || f == nil || r.Auxiliary && f.Auxiliary {
 			continue
 		}
 		t := lrOf(r, f)
-		if pw {
-			t = missingTest("lr", pseudoReason)
+		if sw {
+			t = missingTest(fit.TestLR, pseudoReason)
 		}
 		tb.Nested = append(tb.Nested, NestedTest{Restricted: r.ID, Full: f.ID, Test: t})
 	}
@@ -117,23 +117,23 @@ func testBlock(p *plan.Plan, or *OutcomeResult, approach, link string, fopt fit.
 }
 
 // pseudoReason says why likelihood-based tests are not reported with
-// probability weights.
-const pseudoReason = "not valid with probability weights: the fits maximize a pseudo-likelihood; use the Wald test"
+// sampling weights.
+const pseudoReason = "not valid with sampling weights: the fits maximize a pseudo-likelihood; use the Wald test"
 
 func lrOf(r, f *FitEntry) fit.Test {
 	if r == nil || f == nil || r.Result == nil || f.Result == nil {
-		return missingTest("lr", "a model was not fitted")
+		return missingTest(fit.TestLR, "a model was not fitted")
 	}
 	return fit.LRTest(r.Result, f.Result)
 }
 
 func scoreOf(d *fit.Data, par, np *FitEntry) fit.Test {
 	if !par.OK() || np == nil {
-		return missingTest("score", "the parallel model has no usable fit")
+		return missingTest(fit.TestScore, "the parallel model has no usable fit")
 	}
 	m, err := np.Spec.Model()
 	if err != nil {
-		return missingTest("score", err.Error())
+		return missingTest(fit.TestScore, err.Error())
 	}
 	return fit.ScoreTest(d, par.Result, m)
 }
@@ -143,11 +143,11 @@ func scoreOf(d *fit.Data, par, np *FitEntry) fit.Test {
 func brantTerm(b *fit.BrantResult, d *fit.Data, term fit.Term) fit.Test {
 	if len(term.Columns) != 1 {
 		t := b.Joint(term.Columns)
-		t.Name = "brant"
+		t.Name = fit.TestBrant.String()
 		return t
 	}
 	k := slices.Index(d.Predictors, term.Columns[0])
 	t := b.PerVariable[k]
-	t.Name = "brant"
+	t.Name = fit.TestBrant.String()
 	return t
 }

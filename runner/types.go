@@ -61,30 +61,33 @@ type OutcomeResult struct {
 // FreeSet is the set of terms allowed to vary in partial and
 // constrained models of one approach, and where it came from.
 type FreeSet struct {
-	Approach   string
+	Approach   fit.Comparison
 	Predictors []string
 	Source     string // "plan" or "stepwise"
 }
 
 // StepwiseRecord is the stepwise selection of one approach.
 type StepwiseRecord struct {
-	Approach string
-	Link     string
+	Approach fit.Comparison
+	Link     fit.Link
 	Result   *fit.StepwiseResult
 }
 
 // FitEntry is one fitted model.
 type FitEntry struct {
-	ID        string // approach/level/link, or approach/aux-name/link for auxiliary fits
-	Approach  string
-	Level     string
-	Link      string
+	ID        string // approach/effects/link (fit.ModelID), or approach/only-X-parallel/link
+	Approach  fit.Comparison
+	Effects   fit.Structure
+	Link      fit.Link
 	Auxiliary bool // fitted for tests only, never a candidate
-	Spec      Spec
-	Result    *fit.Result
-	Err       string // the fit could not be attempted (bad input for this model)
-	Verdict   string // kept, rejected or chosen (candidates only)
-	Rejected  string // the rule that rejected it, with its numbers
+	// OnlyParallel names the one parallel predictor of an auxiliary fit in
+	// which every other predictor is nonparallel (per-predictor LR tests).
+	OnlyParallel string
+	Spec         Spec
+	Result       *fit.Result
+	Err          string // the fit could not be attempted (bad input for this model)
+	Verdict      string // kept, rejected or chosen (candidates only)
+	Rejected     string // the rule that rejected it, with its numbers
 }
 
 // OK reports whether the fit has usable estimates.
@@ -93,8 +96,8 @@ func (f *FitEntry) OK() bool { return f != nil && f.Result != nil && f.Result.OK
 // TestBlock holds the parallel-lines tests and nested likelihood-ratio
 // tests of one approach and link.
 type TestBlock struct {
-	Approach    string
-	Link        string
+	Approach    fit.Comparison
+	Link        fit.Link
 	Global      []fit.Test // lr, score, wald, brant, wolfe_gould (those asked for)
 	PerVariable []VarTests
 	Nested      []NestedTest
@@ -102,15 +105,16 @@ type TestBlock struct {
 
 // VarTests are the per-variable parallel-lines tests of one predictor.
 type VarTests struct {
-	Predictor string
-	Tests     []fit.Test
+	Predictor string     `json:"predictor"`
+	Tests     []fit.Test `json:"tests"`
 }
 
-// NestedTest is a likelihood-ratio test between two fitted levels.
+// NestedTest is a likelihood-ratio test between two fitted effect
+// structures.
 type NestedTest struct {
-	Restricted string
-	Full       string
-	Test       fit.Test
+	Restricted string   `json:"restricted"`
+	Full       string   `json:"full"`
+	Test       fit.Test `json:"test"`
 }
 
 // RuleOutcome is what one decision rule did to every candidate.

@@ -18,7 +18,7 @@ outcomes: [{column: y}]
 categorical:
   site: {levels: [north, east, south]}
 predictors: [site, x]
-models: {approaches: [cumulative], levels: [parallel]}
+models: {approaches: [cumulative], effects: [parallel]}
 tests: {parallel_lines: []}
 rules:
   - choose: {by: aic}

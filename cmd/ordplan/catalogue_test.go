@@ -54,7 +54,7 @@ outcomes:
 predictors: [a, b]
 models:
   approaches: [cumulative, stage]
-  levels: [parallel, nonparallel]
+  effects: [parallel, nonparallel]
 tests: {parallel_lines: [lr]}
 rules:
   - reject_unconverged: true
@@ -246,7 +246,7 @@ type fitJSON struct {
 	NObs      float64              `json:"nobs"`
 	Estimates map[string]float64   `json:"estimates"`
 	StdErrors map[string]float64   `json:"std_errors"`
-	Effects   map[string][]float64 `json:"effects"`
+	Slopes    map[string][]float64 `json:"slopes"`
 }
 
 func readFitJSON(t *testing.T, out string) fitJSON {
@@ -331,14 +331,14 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`P7.yaml:3:3: data.file: required key is missing`}},
 		{id: "P8", name: "unknown approach", args: []string{"check"}, plan: edit("[cumulative, stage]", "[cumulative, sideways]"), code: 1,
 			want: []string{`P8.yaml:8:28: models.approaches[1]: unknown approach "sideways" (want cumulative, stage or adjacent)`}},
-		{id: "P9", name: "unknown link", args: []string{"check"}, plan: edit("  levels:", "  links: [logit, tanh]\n  levels:"), code: 1,
-			want: []string{`P9.yaml:9:18: models.links[1]: unknown link "tanh" (want logit, probit, cloglog, loglog or cauchit)`}},
+		{id: "P9", name: "unknown link", args: []string{"check"}, plan: edit("  effects:", "  links: [logit, tanh]\n  effects:"), code: 1,
+			want: []string{`P9.yaml:9:18: models.links[1]: unknown link "tanh" (want logit, probit, cloglog, loglog or cauchy)`}},
 		{id: "P10", name: "rule that applies to no model", args: []string{"check"},
 			plan: edit("[cumulative, stage]", "[stage]", "reject_unconverged", "reject_negative_probabilities"), code: 1,
 			want: []string{`P10.yaml:12:36: rules[0].reject_negative_probabilities: applies only to cumulative fits, and models.approaches does not include cumulative`}},
 		{id: "P11", name: "test rule with nothing to compare", args: []string{"check"},
 			plan: edit("[parallel, nonparallel]", "[parallel]", "reject_unconverged: true", "reject_if_test_rejects: {test: lr}"), code: 1,
-			want: []string{`P11.yaml:12:29: rules[0].reject_if_test_rejects: tests each model against a less constrained one, but models.levels (parallel) gives no such pair`}},
+			want: []string{`P11.yaml:12:29: rules[0].reject_if_test_rejects: tests each model against a less constrained one, but models.effects (parallel) gives no such pair`}},
 		{id: "P12", name: "partial set names no predictor", args: []string{"check"},
 			plan: edit("[parallel, nonparallel]", "[parallel, partial]\n  partial: {free: [a, z]}"), code: 1,
 			want: []string{`P12.yaml:10:23: models.partial.free[1]: "z" is not a predictor (predictors: a, b)`}},
@@ -355,8 +355,8 @@ func catalogue(dir string) (items []badInput) {
 		{id: "P18", name: "empty plan", args: []string{"check"}, plan: "# nothing yet\n", code: 1,
 			want: []string{`P18.yaml: plan file is empty`}},
 		{id: "P19", name: "several problems", args: []string{"check"},
-			plan: edit("column: y", "column: score") + "covariance: sandwich\n", code: 1,
-			want: []string{"P19.yaml:5:13: outcomes[0].column: column \"score\"", "\n", "P19.yaml:14:13: covariance: unknown covariance \"sandwich\""},
+			plan: edit("column: y", "column: score") + "covariance: bootstrap\n", code: 1,
+			want: []string{"P19.yaml:5:13: outcomes[0].column: column \"score\"", "\n", "P19.yaml:14:13: covariance: unknown covariance \"bootstrap\""},
 			check: func(t *testing.T, dir, out, errs string) {
 				if n := strings.Count(strings.TrimSpace(errs), "\n"); n != 1 {
 					t.Errorf("want one line per problem, got %d lines", n+1)
@@ -385,8 +385,8 @@ func catalogue(dir string) (items []badInput) {
 		{id: "D9", name: "declared category never observed", args: []string{"run"},
 			plan: edit("column: y", "column: y\n    categories: [\"1\", \"2\", \"3\", \"4\"]"), code: 1,
 			want: []string{`D9.yaml: outcomes: y: category "4" is declared but never observed in the 120 rows used; remove it from categories or merge it with a neighbour`}},
-		{id: "D10", name: "value that is not a declared category", args: fitArgs(d("labels.csv"), "--levels", "low,high", "--predictors", "a,b"), code: 1,
-			want: []string{`labels.csv:3: column "y": value "medium" is not one of the declared levels: "low", "high"`}},
+		{id: "D10", name: "value that is not a declared category", args: fitArgs(d("labels.csv"), "--categories", "low,high", "--predictors", "a,b"), code: 1,
+			want: []string{`labels.csv:3: column "y": value "medium" is not one of the declared categories: "low", "high"`}},
 		{id: "D12", name: "named pipe as the data file", args: fitArgs(d("fifo.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`fifo.csv: is a named pipe (FIFO), not a regular file: ordplan reads data from files only`}},
 		{id: "D13", name: "device as the data file", args: fitArgs("/dev/zero", "--predictors", "a,b"), code: 1,
@@ -456,9 +456,9 @@ func catalogue(dir string) (items []badInput) {
 		{id: "M4", name: "complete separation", args: fitArgs(d("sep.csv"), "--predictors", "x,z"), code: 1,
 			want: []string{"no finite maximum likelihood estimate", "predictors involved: x", "category boundaries: "}, known: separationMissed},
 		{id: "M5", name: "quasi-complete separation", args: fitArgs(d("quasi1.csv"), "--predictors", "g,z", "--nonparallel", "g"), code: 1,
-			want: []string{"no finite maximum likelihood estimate", "predictors involved: g", "category boundaries: 1|2", `category "1" occurs only at g = 1`}},
+			want: []string{"no finite maximum likelihood estimate", "predictors involved: g", "category boundaries: 1/2", `category "1" occurs only at g = 1`}},
 		{id: "M6", name: "quasi-complete separation, predictor coded the other way", args: fitArgs(d("quasi0.csv"), "--predictors", "g,z", "--nonparallel", "g"), code: 1,
-			want:  []string{"no finite maximum likelihood estimate", "predictors involved: g", "category boundaries: 1|2", `category "1" occurs only at g = 0`},
+			want:  []string{"no finite maximum likelihood estimate", "predictors involved: g", "category boundaries: 1/2", `category "1" occurs only at g = 0`},
 			known: separationMissed},
 		{id: "M7", name: "more parameters than observations", args: fitArgs(d("three.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`three.csv: model cumulative/parallel/logit has 4 parameters but only 3 observations`}},
@@ -480,7 +480,7 @@ func catalogue(dir string) (items []badInput) {
 				// are in decisions.json and in the report.
 				p := filepath.Join(dir, "M10run.yaml")
 				os.WriteFile(p, []byte("version: 1\ndata: {file: slow.csv}\noutcomes: [{column: y}]\npredictors: [a, b, c]\n"+
-					"models: {approaches: [adjacent], levels: [parallel], links: [cloglog]}\ntests: {parallel_lines: []}\n"+
+					"models: {approaches: [adjacent], effects: [parallel], links: [cloglog]}\ntests: {parallel_lines: []}\n"+
 					"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\n"), 0o644)
 				outDir := filepath.Join(dir, "M10out")
 				// The only candidate is rejected, so nothing is chosen: the

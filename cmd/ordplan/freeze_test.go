@@ -23,7 +23,7 @@ func TestFreezeRunDeviations(t *testing.T) {
 	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(data.String()), 0o644)
 	planPath := filepath.Join(dir, "p.yaml")
 	src := "version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [a, b]\n" +
-		"models: {approaches: [cumulative], levels: [parallel, nonparallel]}\ntests: {parallel_lines: [lr]}\n" +
+		"models: {approaches: [cumulative], effects: [parallel, nonparallel]}\ntests: {parallel_lines: [lr]}\n" +
 		"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\n"
 	os.WriteFile(planPath, []byte(src), 0o644)
 	out, errs, code := runCLI("freeze", planPath, "--registration", "REG 12")

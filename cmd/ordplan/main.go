@@ -121,28 +121,31 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 	var (
 		dataFile    = fs.String("data", "", "CSV file with a header line (required)")
 		outcome     = fs.String("outcome", "", "outcome column (required)")
-		levels      = fs.String("levels", "", "category labels in order, lowest first (default: integer codes sorted)")
+		categories  = fs.String("categories", "", "the outcome's category labels in order, lowest first (default: integer codes sorted)")
 		predictors  = fs.String("predictors", "", "predictor terms, comma separated: columns, or the compact forms of categorical columns, transformations and interactions (see below)")
-		approach    = fs.String("approach", "cumulative", "how categories are compared: cumulative, stage or adjacent")
+		approach    = fit.Cumulative
 		direction   = fs.String("direction", "forward", "stage direction: forward or backward")
-		link        = fs.String("link", "logit", "link: logit, probit, cloglog, loglog or cauchit")
+		link        = fit.Logit
+		covariance  = fit.Observed
 		nonparallel = fs.String("nonparallel", "", "predictors whose slopes vary freely across equations")
 		allFree     = fs.Bool("all-nonparallel", false, "make every predictor nonparallel")
 		constrained = fs.String("constrained", "", "predictors whose slopes vary by a common factor: a,b or name:a,b;other:c")
 		stereotype  = fs.Bool("stereotype", false, "adjacent model with every predictor in one constrained group")
-		weights     = fs.String("weights", "", "column of weights (frequency weights unless --weight-kind probability)")
-		weightKind  = fs.String("weight-kind", "frequency", "frequency or probability (sampling) weights; probability weights imply sandwich errors")
-		cluster     = fs.String("cluster", "", "column of cluster ids, for --covariance cluster")
+		weights     = fs.String("weights", "", "column of weights (frequency weights unless --weight-kind sampling)")
+		weightKind  = fs.String("weight-kind", "frequency", "frequency or sampling weights; sampling weights imply sandwich errors")
+		cluster     = fs.String("cluster", "", "column of cluster ids, for --covariance clustered")
 		offset      = fs.String("offset", "", "column added to x'b in every equation")
 		missing     = fs.String("missing", "drop", "rows with a missing value: drop (counted) or refuse")
-		covariance  = fs.String("covariance", "oim", "standard errors: oim (observed information), eim (expected), robust (sandwich HC1), robust_hc0 (HC0) or cluster (CR1)")
 		baseline    = fs.String("baseline", "", "also show an adjacent nonparallel logit as baseline-category logits against this category")
-		level       = fs.Float64("level", 0.95, "confidence level of the intervals")
+		level       = fs.Float64("confidence-level", 0.95, "confidence level of the intervals")
 		asJSON      = fs.Bool("json", false, "print one JSON object instead of the table")
 		qf          = addQueueFlags(fs, "with --partitions: the NATS JetStream server whose workers hold the partitions", true)
 		queueURL    = qf.url
 		partitions  = fs.String("partitions", "", "fit one model over these CSV files (same columns) through --queue workers, for data too large for one machine")
 	)
+	fs.TextVar(&approach, "approach", fit.Cumulative, "how categories are compared: "+fit.ComparisonWords.OrList())
+	fs.TextVar(&link, "link", fit.Logit, "link: "+fit.LinkWords.OrList())
+	fs.TextVar(&covariance, "covariance", fit.Observed, "standard errors: observed (information), expected (information), sandwich (HC1), sandwich_plain (HC0) or clustered (CR1)")
 	fs.Usage = func() {
 		fmt.Fprintln(fs.Output(), "Usage of ordplan fit:")
 		fs.PrintDefaults()
@@ -166,8 +169,8 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "ordplan fit: --missing must be drop or refuse, not %q\n", *missing)
 		return exitUsage
 	}
-	if *weightKind != "frequency" && *weightKind != "probability" {
-		fmt.Fprintf(stderr, "ordplan fit: --weight-kind must be frequency or probability, not %q\n", *weightKind)
+	if *weightKind != "frequency" && *weightKind != "sampling" {
+		fmt.Fprintf(stderr, "ordplan fit: --weight-kind must be frequency or sampling, not %q\n", *weightKind)
 		return exitUsage
 	}
 	if *direction != "forward" && *direction != "backward" {
@@ -182,10 +185,10 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 	for _, t := range dspec.Terms {
 		termNames = append(termNames, t.Name)
 	}
-	s := runner.SingleFit{DataFile: *dataFile, Outcome: *outcome, Levels: runner.SplitList(*levels),
-		Predictors: termNames, Design: &dspec, Approach: *approach, Backward: *direction == "backward",
-		Link: *link, Nonparallel: runner.SplitList(*nonparallel), Weights: *weights, Offset: *offset,
-		Refuse: *missing == "refuse", Covariance: *covariance, Cluster: *cluster, Probability: *weightKind == "probability"}
+	s := runner.SingleFit{DataFile: *dataFile, Outcome: *outcome, Categories: runner.SplitList(*categories),
+		Predictors: termNames, Design: &dspec, Approach: approach, Backward: *direction == "backward",
+		Link: link, Nonparallel: runner.SplitList(*nonparallel), Weights: *weights, Offset: *offset,
+		Refuse: *missing == "refuse", Covariance: covariance, Cluster: *cluster, Sampling: *weightKind == "sampling"}
 	if *allFree {
 		s.Nonparallel = s.Predictors
 	}
@@ -210,13 +213,13 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 	var base *fit.Baseline
 	if *baseline != "" {
 		ref := -1
-		for i, l := range res.Levels {
+		for i, l := range res.Categories {
 			if l == *baseline {
 				ref = i
 			}
 		}
 		if ref < 0 {
-			return fail(stderr, fmt.Errorf("--baseline: %q is not a category of %s (%s)", *baseline, *outcome, strings.Join(res.Levels, ", ")))
+			return fail(stderr, fmt.Errorf("--baseline: %q is not a category of %s (%s)", *baseline, *outcome, strings.Join(res.Categories, ", ")))
 		}
 		if base, err = res.Baseline(ref); err != nil {
 			return fail(stderr, err)

@@ -42,7 +42,7 @@ outcomes:
   - column: safety.2
   - column: safety_2
 predictors: [a, b]
-models: {approaches: [cumulative], levels: [parallel]}
+models: {approaches: [cumulative], effects: [parallel]}
 tests: {parallel_lines: []}
 rules:
   - choose: {by: aic}

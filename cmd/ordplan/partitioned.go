@@ -25,9 +25,9 @@ func fitPartitioned(s runner.SingleFit, qf *queueFlags, parts []string, asJSON b
 		return fail(stderr, errors.New("--partitions needs --queue nats://HOST:PORT"))
 	case len(parts) == 0:
 		return fail(stderr, errors.New("--queue with ordplan fit needs --partitions a.csv,b.csv,..."))
-	case s.Covariance != "" && s.Covariance != fit.CovOIM:
+	case s.Covariance != fit.Observed:
 		return fail(stderr, errors.New("partitioned fits give observed-information standard errors only"))
-	case s.Probability || s.Cluster != "":
+	case s.Sampling || s.Cluster != "":
 		return fail(stderr, errors.New("partitioned fits take frequency weights only, without clusters"))
 	case !s.PlainColumns():
 		return fail(stderr, errors.New("partitioned fits read numeric columns as they are: categorical columns, transformations and interactions need the whole data in one place (their constants come from all rows)"))
@@ -41,7 +41,7 @@ func fitPartitioned(s runner.SingleFit, qf *queueFlags, parts []string, asJSON b
 	if err != nil {
 		return usageOrFail("fit", err, stderr)
 	}
-	dopt := data.Options{Outcome: s.Outcome, Levels: s.Levels, Predictors: s.Predictors, Weights: s.Weights, Offset: s.Offset, Refuse: s.Refuse}
+	dopt := data.Options{Outcome: s.Outcome, Categories: s.Categories, Predictors: s.Predictors, Weights: s.Weights, Offset: s.Offset, Refuse: s.Refuse}
 	whole, refs, read, err := queue.PartitionFiles(parts, dopt)
 	if err != nil {
 		return fail(stderr, err)

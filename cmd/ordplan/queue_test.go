@@ -337,7 +337,7 @@ func TestFitPartitionsThroughWorkers(t *testing.T) {
 		os.WriteFile(path, []byte(b.String()), 0o644)
 		parts = append(parts, path)
 	}
-	args := []string{"fit", "--outcome", "warm", "--levels", "1,2,3,4", "--predictors", "yr89,male,white,age,ed,prst", "--nonparallel", "yr89,male", "--json"}
+	args := []string{"fit", "--outcome", "warm", "--categories", "1,2,3,4", "--predictors", "yr89,male,white,age,ed,prst", "--nonparallel", "yr89,male", "--json"}
 	local, errs, code := runCLI(append(args, "--data", filepath.Join(refDir, "gsswarm.csv"))...)
 	if code != 0 {
 		t.Fatal(errs)

@@ -60,7 +60,7 @@ func TestRunAndCheckBadInput(t *testing.T) {
 		return p
 	}
 	write("d.csv", "y,a,b\n1,0.5,1\n2,0.1,0\n3,0.7,1\n1,0.2,0\n2,0.9,1\n3,0.3,0\n")
-	good := "version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [a, b]\nmodels: {levels: [parallel, nonparallel]}\nrules:\n  - choose: {by: aic}\n"
+	good := "version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [a, b]\nmodels: {effects: [parallel, nonparallel]}\nrules:\n  - choose: {by: aic}\n"
 	cases := []struct {
 		name, plan string
 		cmd        string
@@ -69,7 +69,7 @@ func TestRunAndCheckBadInput(t *testing.T) {
 	}{
 		{"unknown key", strings.Replace(good, "predictors:", "predictorz: [a]\npredictors:", 1), "check", 1, "predictorz"},
 		{"absent column", strings.Replace(good, "[a, b]", "[a, c]", 1), "check", 1, `"c"`},
-		{"unknown approach", strings.Replace(good, "{levels:", "{approaches: [sideways], levels:", 1), "check", 1, "sideways"},
+		{"unknown approach", strings.Replace(good, "{effects:", "{approaches: [sideways], effects:", 1), "check", 1, "sideways"},
 		{"undeclared category", strings.Replace(good, "{column: y}", "{column: y, categories: [\"1\", \"2\"]}", 1), "run", 1, `"3"`},
 		{"never observed", strings.Replace(good, "{column: y}", "{column: y, categories: [\"1\", \"2\", \"3\", \"4\"]}", 1), "run", 1, `category "4" is declared but never observed`},
 		{"valid", good, "check", 0, "plan is valid"},

@@ -21,7 +21,7 @@ outcomes:
 predictors: [a, b]
 models:
   approaches: [cumulative]
-  levels: [parallel, nonparallel]
+  effects: [parallel, nonparallel]
 tests: {parallel_lines: [lr]}
 rules:
   - reject_unconverged: true
@@ -54,7 +54,7 @@ func setup(t *testing.T, src string) (*plan.Plan, string) {
 func TestMatches(t *testing.T) {
 	// Comments, key order and spelled-out defaults do not change the
 	// canonical form.
-	same := strings.Replace(basePlan, "version: 1\n", "version: 1 # registered\ncovariance: oim\n", 1)
+	same := strings.Replace(basePlan, "version: 1\n", "version: 1 # registered\ncovariance: observed\n", 1)
 	p, _ := setup(t, same)
 	st, err := Check(p, false)
 	if err != nil {

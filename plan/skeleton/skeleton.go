@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"ordplan/runner/data"
+	"ordplan/runner/fit"
 )
 
 // Input is what the skeleton is written from.
@@ -150,7 +151,7 @@ func Write(in Input) ([]byte, error) {
 	w("  missing_values: [\"\", \"NA\", \"NaN\", \".\"]   # cells that mean \"missing\"")
 	w("  weights: null           # a column of case weights")
 	w("  offset: null            # a column added to every linear predictor")
-	w("  cluster: null           # a column of cluster ids (needs covariance: cluster)")
+	w("  cluster: null           # a column of cluster ids (needs covariance: clustered)")
 	w("")
 	w("outcomes:")
 	if outcome >= 0 {
@@ -199,8 +200,8 @@ func Write(in Input) ([]byte, error) {
 	w("models:")
 	w("  approaches: [cumulative, stage, adjacent]")
 	w("  direction: forward      # stage models only: forward | backward")
-	w("  levels: [parallel, nonparallel]   # also: partial, constrained (with partial: free: [...]), stereotype")
-	w("  links: [logit]          # logit | probit | cloglog | loglog | cauchit")
+	w("  effects: [parallel, nonparallel]  # also: partial, constrained (with partial: free: [...]), stereotype")
+	w("  links: [logit]          # %s", strings.Join(fit.LinkWords.Names(), " | "))
 	w("")
 	w("tests:")
 	w("  parallel_lines: [brant, lr, score, wald]")
@@ -213,7 +214,7 @@ func Write(in Input) ([]byte, error) {
 	w("  - reject_if_test_rejects: {test: lr, alpha: 0.05}")
 	w("  - prefer_simpler: {by: bic, margin: 2}")
 	w("")
-	w("covariance: oim           # oim | eim | robust | robust_hc0 | cluster")
+	w("covariance: observed      # %s", strings.Join(fit.CovarianceWords.Names(), " | "))
 	w("")
 	w("report:")
 	w("  confidence_level: 0.95")

@@ -33,11 +33,11 @@ func TestRegenerate(t *testing.T) {
 }
 
 // TestCommittedLoads checks that the committed file reads as the example
-// plans use it: all five levels seen, incomplete rows dropped.
+// plans use it: all five categories seen, incomplete rows dropped.
 func TestCommittedLoads(t *testing.T) {
 	d, err := data.Load(committed, data.Options{
 		Outcome:    "safety",
-		Levels:     labels,
+		Categories: labels,
 		Predictors: []string{"pilot", "female", "age", "child_home", "years_resident", "cyclist"},
 		Cluster:    "district",
 	})
@@ -48,7 +48,7 @@ func TestCommittedLoads(t *testing.T) {
 		t.Errorf("read %d rows, want %d", d.RowsRead, nRows)
 	}
 	if len(d.Unobserved) != 0 {
-		t.Errorf("unobserved levels %v", d.Unobserved)
+		t.Errorf("unobserved categories %v", d.Unobserved)
 	}
 	cols := []string{}
 	for _, dc := range d.Dropped {

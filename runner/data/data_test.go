@@ -12,7 +12,7 @@ import (
 var opts = Options{Outcome: "y", Predictors: []string{"a", "b"}}
 
 func TestReadErrors(t *testing.T) {
-	labelled := Options{Outcome: "y", Levels: []string{"low", "mid", "high"}, Predictors: []string{"a"}}
+	labelled := Options{Outcome: "y", Categories: []string{"low", "mid", "high"}, Predictors: []string{"a"}}
 	tests := []struct {
 		name string
 		in   string
@@ -63,12 +63,12 @@ func TestReadErrors(t *testing.T) {
 			`t.csv:2: column "o": value "zz" is not a number`},
 		{"negative weight", "y,w\n1,-2\n2,1\n", Options{Outcome: "y", Weights: "w"}, 2, "w",
 			`t.csv:2: column "w": weight "-2" is negative (frequency weights must be zero or more)`},
-		{"undeclared level", "y,a\nlow,1\nmedium,2\n", labelled, 3, "y",
-			`t.csv:3: column "y": value "medium" is not one of the declared levels: "low", "mid", "high"`},
+		{"undeclared category", "y,a\nlow,1\nmedium,2\n", labelled, 3, "y",
+			`t.csv:3: column "y": value "medium" is not one of the declared categories: "low", "mid", "high"`},
 		{"outcome not integer", "y,a,b\n1,2,3\n2.5,2,3\n", opts, 3, "y",
-			`t.csv:3: column "y": value "2.5" is not an integer category code (declare the levels to use text labels)`},
-		{"outcome text without levels", "y,a,b\nlow,2,3\n", opts, 2, "y",
-			`t.csv:2: column "y": value "low" is not an integer category code (declare the levels to use text labels)`},
+			`t.csv:3: column "y": value "2.5" is not an integer category code (declare the categories to use text labels)`},
+		{"outcome text without categories", "y,a,b\nlow,2,3\n", opts, 2, "y",
+			`t.csv:2: column "y": value "low" is not an integer category code (declare the categories to use text labels)`},
 		{"one category", "y,a,b\n2,1,1\n2,2,2\n3,,1\n", opts, 0, "y",
 			`t.csv: column "y": only one category ("2") among the 2 kept rows; at least two are needed`},
 		{"one declared category observed", "y,a\nmid,1\nmid,2\n", labelled, 0, "y",
@@ -85,10 +85,10 @@ func TestReadErrors(t *testing.T) {
 			`t.csv: column "a" is given twice as predictor`},
 		{"outcome also predictor", "y,a\n1,2\n", Options{Outcome: "y", Predictors: []string{"y"}}, 0, "",
 			`t.csv: column "y" is given both as outcome and as predictor`},
-		{"duplicate declared level", "y,a\n1,2\n", Options{Outcome: "y", Levels: []string{"a", "b", "a"}}, 0, "",
-			`t.csv: outcome level "a" is declared twice`},
-		{"single declared level", "y,a\n1,2\n", Options{Outcome: "y", Levels: []string{"a"}}, 0, "",
-			`t.csv: only one outcome level declared ("a"); at least two are needed`},
+		{"duplicate declared category", "y,a\n1,2\n", Options{Outcome: "y", Categories: []string{"a", "b", "a"}}, 0, "",
+			`t.csv: outcome category "a" is declared twice`},
+		{"single declared category", "y,a\n1,2\n", Options{Outcome: "y", Categories: []string{"a"}}, 0, "",
+			`t.csv: only one outcome category declared ("a"); at least two are needed`},
 		{"line after quoted newline", "y,a,b\n1,\"2\n\",3\n2,q,3\n", opts, 4, "a",
 			`t.csv:4: column "a": value "q" is not a number; the column holds text: declare it categorical (under categorical: with its levels) to use it as a predictor`},
 		{"field line is where the field starts", "y,a,b\n1,\"2\n\",\"\nq\"\n", opts, 3, "b",
@@ -133,7 +133,7 @@ func TestRead(t *testing.T) {
 			in:   "y,a,b,c\n10,1,2,x\n2,3,4,x\n-1,5,6,x\n10,,7,x\n2,8,NA,x\n,1,.,x\n2, 9 ,10,x\n",
 			opt:  opts,
 			want: Dataset{
-				Outcome: "y", Levels: []string{"-1", "2", "10"},
+				Outcome: "y", Categories: []string{"-1", "2", "10"},
 				Y: []int{2, 1, 0, 1}, Predictors: []string{"a", "b"},
 				X: []float64{1, 2, 3, 4, 5, 6, 9, 10}, N: 4, K: 2,
 				RowsRead: 7, RowsDropped: 3,
@@ -142,12 +142,12 @@ func TestRead(t *testing.T) {
 			},
 		},
 		{
-			name: "labels, weights, offset, cluster, BOM, CRLF, unobserved level",
+			name: "labels, weights, offset, cluster, BOM, CRLF, unobserved category",
 			in:   "\uFEFFg,y,w,o,x\r\nd1,low,2,0.5,1\r\nd2,high,1.5,-1,2\r\nd1,low,1,0,3\r\n",
-			opt: Options{Outcome: "y", Levels: []string{"low", "mid", "high"}, Predictors: []string{"x"},
+			opt: Options{Outcome: "y", Categories: []string{"low", "mid", "high"}, Predictors: []string{"x"},
 				Weights: "w", Offset: "o", Cluster: "g"},
 			want: Dataset{
-				Outcome: "y", Levels: []string{"low", "mid", "high"},
+				Outcome: "y", Categories: []string{"low", "mid", "high"},
 				Y: []int{0, 2, 0}, Predictors: []string{"x"}, X: []float64{1, 2, 3}, N: 3, K: 1,
 				Weights: []float64{2, 1.5, 1}, Offset: []float64{0.5, -1, 0}, Cluster: []string{"d1", "d2", "d1"},
 				RowsRead: 3, Counts: []float64{3, 0, 1.5}, Lines: []int{2, 3, 4},
@@ -159,7 +159,7 @@ func TestRead(t *testing.T) {
 			in:   "y,z,w\n1,q,-9\n2,q,1\n-9,q,-9\n1,q,3\n",
 			opt:  Options{Outcome: "y", Weights: "w", MissingTokens: []string{"-9"}},
 			want: Dataset{
-				Outcome: "y", Levels: []string{"1", "2"}, Y: []int{1, 0},
+				Outcome: "y", Categories: []string{"1", "2"}, Y: []int{1, 0},
 				Predictors: []string{}, X: []float64{}, N: 2, K: 0,
 				Weights: []float64{1, 3}, RowsRead: 4, RowsDropped: 2,
 				Dropped: []DropCount{{Column: "y", Rows: 1}, {Column: "w", Rows: 1}},
@@ -171,7 +171,7 @@ func TestRead(t *testing.T) {
 			in:   " y , a ,note\n1,\"2.5\",\"two\nlines\"\n0,1e-3,ok\n",
 			opt:  Options{Outcome: "y", Predictors: []string{"a"}},
 			want: Dataset{
-				Outcome: "y", Levels: []string{"0", "1"}, Y: []int{1, 0},
+				Outcome: "y", Categories: []string{"0", "1"}, Y: []int{1, 0},
 				Predictors: []string{"a"}, X: []float64{2.5, 0.001}, N: 2, K: 1,
 				RowsRead: 2, Counts: []float64{1, 1}, Lines: []int{2, 4},
 			},

@@ -8,9 +8,9 @@ import (
 // DropCount is the number of rows dropped because of a missing value in
 // one column.
 type DropCount struct {
-	Column string
-	Rows   int
-	Subset bool `json:"subset,omitempty"` // dropped by the plan's subset, not for a missing value
+	Column string `json:"column"`
+	Rows   int    `json:"rows"`
+	Subset bool   `json:"subset,omitempty"` // dropped by the plan's subset, not for a missing value
 }
 
 // LevelRef is one level of a categorical predictor column.
@@ -25,7 +25,7 @@ type LevelRef struct {
 type Dataset struct {
 	File        string
 	Outcome     string
-	Levels      []string // J category labels, lowest first
+	Categories  []string // J category labels, lowest first
 	Y           []int    // kept rows: category index 0..J-1
 	Predictors  []string
 	X           []float64 // kept rows, row-major N x K
@@ -44,7 +44,7 @@ type Dataset struct {
 	Missing *MissingTable
 	Counts  []float64 // per category: kept rows (sum of weights when weighted)
 	Lines   []int     // kept rows: 1-based line number in the file
-	// Unobserved lists declared levels that no kept row has. Reading does
+	// Unobserved lists declared categories that no kept row has. Reading does
 	// not refuse them; the caller decides.
 	Unobserved []string
 	// UnobservedLevels lists declared levels of categorical predictors

@@ -45,8 +45,8 @@ func FuzzRead(f *testing.F) {
 			}
 		}
 		for _, y := range d.Y {
-			if y < 0 || y >= len(d.Levels) {
-				t.Fatalf("Y value %d out of range 0..%d", y, len(d.Levels)-1)
+			if y < 0 || y >= len(d.Categories) {
+				t.Fatalf("Y value %d out of range 0..%d", y, len(d.Categories)-1)
 			}
 		}
 	})

@@ -17,9 +17,13 @@ type Rows struct {
 	Offset     []float64 // nil when no offset column
 	N          int
 	Lines      []int // line of each kept row
-	RowsRead   int
-	Skipped    []int  // lines skipped for a missing value
-	SHA256     string // hex SHA-256 of the file's bytes
+	// Header is the file's header; Cells the trimmed cells of each kept
+	// row, so that outputs can carry the rows' identifying columns.
+	Header   []string
+	Cells    [][]string
+	RowsRead int
+	Skipped  []int  // lines skipped for a missing value
+	SHA256   string // hex SHA-256 of the file's bytes
 }
 
 // LoadRows reads a CSV file of rows to predict: a header naming at least
@@ -52,7 +56,8 @@ func LoadRowsLevels(path string, predictors []string, levels map[string][]string
 	}
 	index := map[string]int{}
 	for i, h := range head {
-		index[strings.TrimSpace(h)] = i
+		head[i] = strings.TrimSpace(h)
+		index[head[i]] = i
 	}
 	cols := append([]string(nil), predictors...)
 	if offset != "" {
@@ -67,7 +72,7 @@ func LoadRowsLevels(path string, predictors []string, levels map[string][]string
 		pos[j] = i
 	}
 	K := len(predictors)
-	rs := &Rows{File: path, Predictors: predictors, SHA256: hash}
+	rs := &Rows{File: path, Predictors: predictors, SHA256: hash, Header: head}
 	for {
 		rec, err := cr.Read()
 		if err == io.EOF {
@@ -120,6 +125,13 @@ func LoadRowsLevels(path string, predictors []string, levels map[string][]string
 			rs.Offset = append(rs.Offset, vals[K])
 		}
 		rs.Lines = append(rs.Lines, line)
+		cells := make([]string, len(head))
+		for i := range cells {
+			if i < len(rec) {
+				cells[i] = strings.TrimSpace(rec[i])
+			}
+		}
+		rs.Cells = append(rs.Cells, cells)
 		rs.N++
 	}
 	if rs.RowsRead == 0 {

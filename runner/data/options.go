@@ -8,10 +8,10 @@ import (
 // Options says which columns of the file to use and how.
 type Options struct {
 	Outcome string // outcome column (required)
-	// Levels gives the category order as labels, lowest first. If empty,
-	// the outcome must hold integer codes and the levels are the distinct
+	// Categories gives the category order as labels, lowest first. If empty,
+	// the outcome must hold integer codes and the categories are the distinct
 	// codes observed, sorted numerically, labelled by their decimal text.
-	Levels     []string
+	Categories []string
 	Predictors []string // predictor columns, in the order wanted
 	// PredictorLevels declares categorical predictor columns: the cell
 	// text must be one of the listed levels and is stored in X as the
@@ -104,26 +104,26 @@ func (o *Options) plan() ([]usedCol, error) {
 		}
 		seen[c.name] = c.role
 	}
-	if err := checkLevels(o.Levels); err != nil {
+	if err := checkCategories(o.Categories); err != nil {
 		return nil, err
 	}
 	return cols, nil
 }
 
-func checkLevels(levels []string) error {
-	if len(levels) == 0 {
+func checkCategories(cats []string) error {
+	if len(cats) == 0 {
 		return nil
 	}
-	if len(levels) < 2 {
-		return fmt.Errorf("only one outcome level declared (%s); at least two are needed", quoteList(levels))
+	if len(cats) < 2 {
+		return fmt.Errorf("only one outcome category declared (%s); at least two are needed", quoteList(cats))
 	}
 	seen := map[string]bool{}
-	for i, l := range levels {
+	for i, l := range cats {
 		if strings.TrimSpace(l) != l || l == "" {
-			return fmt.Errorf("outcome level %d (%s) is empty or has surrounding spaces", i+1, quoteCell(l))
+			return fmt.Errorf("outcome category %d (%s) is empty or has surrounding spaces", i+1, quoteCell(l))
 		}
 		if seen[l] {
-			return fmt.Errorf("outcome level %s is declared twice", quoteCell(l))
+			return fmt.Errorf("outcome category %s is declared twice", quoteCell(l))
 		}
 		seen[l] = true
 	}

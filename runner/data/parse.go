@@ -34,7 +34,7 @@ func parseNumber(cell string) (float64, string) {
 func parseCode(cell string) (int64, string) {
 	c, err := strconv.ParseInt(cell, 10, 64)
 	if err != nil {
-		return 0, "value " + quoteCell(cell) + " is not an integer category code (declare the levels to use text labels)"
+		return 0, "value " + quoteCell(cell) + " is not an integer category code (declare the categories to use text labels)"
 	}
 	return c, ""
 }

@@ -20,7 +20,7 @@ func (r *reader) rows() (*Dataset, error) {
 		d.Predictors = []string{}
 	}
 	labels := map[string]int{}
-	for i, l := range opt.Levels {
+	for i, l := range opt.Categories {
 		labels[l] = i
 	}
 	var codes []int64 // outcome codes of kept rows, when no labels are declared
@@ -99,10 +99,10 @@ func (r *reader) rows() (*Dataset, error) {
 			var msg string
 			switch c.role {
 			case roleOutcome:
-				if len(opt.Levels) > 0 {
+				if len(opt.Categories) > 0 {
 					i, ok := labels[cell]
 					if !ok {
-						msg = "value " + quoteCell(cell) + " is not one of the declared levels: " + quoteList(opt.Levels)
+						msg = "value " + quoteCell(cell) + " is not one of the declared categories: " + quoteList(opt.Categories)
 					}
 					y = i
 					outLabel = cell
@@ -229,10 +229,10 @@ func (r *reader) rows() (*Dataset, error) {
 	if d.X == nil {
 		d.X = []float64{}
 	}
-	if len(opt.Levels) > 0 {
-		d.Levels = slices.Clone(opt.Levels)
+	if len(opt.Categories) > 0 {
+		d.Categories = slices.Clone(opt.Categories)
 	} else {
-		d.Levels = codeLevels(codes, d.Y)
+		d.Categories = codeCategories(codes, d.Y)
 	}
 	if err := r.tally(d); err != nil {
 		return nil, err
@@ -251,7 +251,7 @@ func (t *MissingTable) byCategory(cols []usedCol, d *Dataset, catMiss map[string
 			idx = append(idx, i)
 		}
 	}
-	kept := make([]int, len(d.Levels))
+	kept := make([]int, len(d.Categories))
 	for _, y := range d.Y {
 		kept[y]++
 	}
@@ -269,12 +269,12 @@ func (t *MissingTable) byCategory(cols []usedCol, d *Dataset, catMiss map[string
 		}
 		t.ByCategory = append(t.ByCategory, cm)
 	}
-	for j, l := range d.Levels {
+	for j, l := range d.Categories {
 		add(l, kept[j])
 	}
 	var extra []string
 	for l := range catIncomplete {
-		if !slices.Contains(d.Levels, l) {
+		if !slices.Contains(d.Categories, l) {
 			extra = append(extra, l)
 		}
 	}
@@ -284,9 +284,9 @@ func (t *MissingTable) byCategory(cols []usedCol, d *Dataset, catMiss map[string
 	}
 }
 
-// codeLevels sets y to the index of each code among the distinct codes,
+// codeCategories sets y to the index of each code among the distinct codes,
 // sorted numerically, and returns their decimal labels.
-func codeLevels(codes []int64, y []int) []string {
+func codeCategories(codes []int64, y []int) []string {
 	distinct := slices.Clone(codes)
 	slices.Sort(distinct)
 	distinct = slices.Compact(distinct)
@@ -303,7 +303,7 @@ func codeLevels(codes []int64, y []int) []string {
 // tally counts the kept rows per category and checks that at least two
 // categories are present.
 func (r *reader) tally(d *Dataset) error {
-	d.Counts = make([]float64, len(d.Levels))
+	d.Counts = make([]float64, len(d.Categories))
 	for i, y := range d.Y {
 		if d.Weights != nil {
 			d.Counts[y] += d.Weights[i]
@@ -316,9 +316,9 @@ func (r *reader) tally(d *Dataset) error {
 	for j, c := range d.Counts {
 		if c > 0 {
 			seen++
-			last = d.Levels[j]
+			last = d.Categories[j]
 		} else {
-			d.Unobserved = append(d.Unobserved, d.Levels[j])
+			d.Unobserved = append(d.Unobserved, d.Categories[j])
 		}
 	}
 	if seen < 2 {

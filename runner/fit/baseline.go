@@ -11,7 +11,7 @@ import (
 type Baseline struct {
 	Ref        int       `json:"reference"`  // reference category (0-based)
 	Categories []int     `json:"categories"` // the non-reference categories, in order (0-based)
-	Names      []string  `json:"names"`      // "cut1".., "var[1]".. indexed by position in Categories
+	Names      []string  `json:"names"`      // "alpha[1]".., "x[1]".. indexed by position in Categories
 	Estimates  []float64 `json:"estimates"`
 	StdErrors  []float64 `json:"std_errors"`
 	Cov        []float64 `json:"-"`
@@ -21,7 +21,7 @@ type Baseline struct {
 // form against reference category ref (0-based), with delta-method (here
 // exact, the map being linear) standard errors.
 func (r *Result) Baseline(ref int) (*Baseline, error) {
-	if r.Model.Comparison != Adjacent || r.Model.Link != Logit || r.Model.Level() != "nonparallel" {
+	if r.Model.Comparison != Adjacent || r.Model.Link != Logit || r.Model.Structure() != NonparallelEffects {
 		return nil, fmt.Errorf("the baseline-category form exists for the adjacent nonparallel logit only, not %s", r.Name)
 	}
 	if !r.OK() {
@@ -46,9 +46,9 @@ func (r *Result) Baseline(ref int) (*Baseline, error) {
 	nOut := q * (K + 1)
 	A := make([]float64, nOut*P)
 	row := 0
-	// cutpoints
+	// intercepts
 	for i, j := range cats {
-		out.Names = append(out.Names, fmt.Sprintf("cut%d", i+1))
+		out.Names = append(out.Names, fmt.Sprintf("alpha[%d]", i+1))
 		for k := 0; k < j; k++ {
 			A[row*P+ly.cut[k]] -= 1
 		}

@@ -27,7 +27,7 @@ type BrantResult struct {
 // of a term whose columns are names.
 func (br *BrantResult) Joint(names []string) Test {
 	if !br.OK {
-		return failedTest("brant", "%s", br.Reason)
+		return failedTest(TestBrant.String(), "%s", br.Reason)
 	}
 	K := len(br.predictors)
 	q := len(br.Slopes)
@@ -36,7 +36,7 @@ func (br *BrantResult) Joint(names []string) Test {
 	for _, n := range names {
 		k := indexOf(br.predictors, n)
 		if k < 0 {
-			return failedTest("brant", "%s is not a predictor", n)
+			return failedTest(TestBrant.String(), "%s is not a predictor", n)
 		}
 		for m := 1; m < q; m++ {
 			r := make([]float64, N)
@@ -47,9 +47,9 @@ func (br *BrantResult) Joint(names []string) Test {
 	}
 	x, err := waldStat(rows, br.beta, br.cov)
 	if err != nil {
-		return failedTest("brant", "%v", err)
+		return failedTest(TestBrant.String(), "%v", err)
 	}
-	return chi2Test("brant", x, len(rows))
+	return chi2Test(TestBrant.String(), x, len(rows))
 }
 
 // binaryFits fits the J-1 binary logits of 1[y > m].
@@ -59,7 +59,7 @@ func binaryFits(d *Data, opt Options) ([]*Result, error) {
 	var bad []string
 	for m := 0; m < q; m++ {
 		bd := &Data{J: 2, X: d.X, Predictors: d.Predictors, Weights: d.Weights, Offset: d.Offset,
-			Levels: []string{"<= " + d.levels()[m], "> " + d.levels()[m]}}
+			Categories: []string{"<= " + d.categories()[m], "> " + d.categories()[m]}}
 		bd.Y = make([]int, len(d.Y))
 		for i, y := range d.Y {
 			if y > m {
@@ -68,11 +68,11 @@ func binaryFits(d *Data, opt Options) ([]*Result, error) {
 		}
 		r, err := Fit(bd, Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(len(d.Predictors), Parallel)}, Options{Workers: opt.Workers})
 		if err != nil {
-			bad = append(bad, fmt.Sprintf("logit of 1[y > %s]: %v", d.levels()[m], err))
+			bad = append(bad, fmt.Sprintf("logit of 1[y > %s]: %v", d.categories()[m], err))
 			continue
 		}
 		if !r.OK() {
-			bad = append(bad, fmt.Sprintf("logit of 1[y > %s]: %s", d.levels()[m], r.Status))
+			bad = append(bad, fmt.Sprintf("logit of 1[y > %s]: %s", d.categories()[m], r.Status))
 		}
 		fits[m] = r
 	}
@@ -147,7 +147,7 @@ func Brant(d *Data, opt Options) *BrantResult {
 		A := cross(func(i int) float64 { return w(i) * pi[m][i] * (1 - pi[m][i]) })
 		var Ai mat.Dense
 		if err := Ai.Inverse(A); err != nil {
-			br.Reason = fmt.Sprintf("Brant test cannot be computed: the information of the logit of 1[y > %s] is singular", d.levels()[m])
+			br.Reason = fmt.Sprintf("Brant test cannot be computed: the information of the logit of 1[y > %s] is singular", d.categories()[m])
 			return br
 		}
 		inv[m] = &Ai
@@ -194,9 +194,9 @@ func Brant(d *Data, opt Options) *BrantResult {
 		rows := rowsFor(k)
 		all = append(all, rows...)
 		x, err := waldStat(rows, beta, V)
-		t := chi2Test("brant", x, len(rows))
+		t := chi2Test(TestBrant.String(), x, len(rows))
 		if err != nil {
-			t = failedTest("brant", "%v", err)
+			t = failedTest(TestBrant.String(), "%v", err)
 		}
 		t.Name = d.Predictors[k]
 		br.PerVariable = append(br.PerVariable, t)
@@ -206,7 +206,7 @@ func Brant(d *Data, opt Options) *BrantResult {
 		br.Reason = "Brant test cannot be computed: " + err.Error()
 		return br
 	}
-	br.Omnibus = chi2Test("brant", x, len(all))
+	br.Omnibus = chi2Test(TestBrant.String(), x, len(all))
 	br.beta, br.cov, br.predictors = beta, V, d.Predictors
 	br.OK = true
 	return br
@@ -218,11 +218,11 @@ func Brant(d *Data, opt Options) *BrantResult {
 // cumulative logit that needs no nonparallel cumulative fit.
 func WolfeGould(d *Data, opt Options) Test {
 	if err := d.validate(); err != nil {
-		return failedTest("wolfe_gould", "%v", err)
+		return failedTest(TestWolfeGould.String(), "%v", err)
 	}
 	K := len(d.Predictors)
 	if d.J < 3 || K == 0 {
-		return failedTest("wolfe_gould", "needs at least 3 categories and one predictor")
+		return failedTest(TestWolfeGould.String(), "needs at least 3 categories and one predictor")
 	}
 	cum := Model{Comparison: Cumulative, Link: Logit}
 	implied := func(e Effect) (float64, error) {
@@ -252,13 +252,13 @@ func WolfeGould(d *Data, opt Options) Test {
 	}
 	llp, err := implied(Parallel)
 	if err != nil {
-		return failedTest("wolfe_gould", "%v", err)
+		return failedTest(TestWolfeGould.String(), "%v", err)
 	}
 	llnp, err := implied(Nonparallel)
 	if err != nil {
-		return failedTest("wolfe_gould", "%v", err)
+		return failedTest(TestWolfeGould.String(), "%v", err)
 	}
-	t := chi2Test("wolfe_gould", 2*(llnp-llp), K*(d.J-2))
+	t := chi2Test(TestWolfeGould.String(), 2*(llnp-llp), K*(d.J-2))
 	if t.Chi2 < 0 {
 		t.P = 1
 	}

@@ -1,8 +1,9 @@
 package fit
 
 import (
-	"fmt"
 	"math"
+
+	"ordplan/internal/words"
 )
 
 // Comparison says how categories are compared: it turns the J-1 link
@@ -21,24 +22,23 @@ const (
 	stackedBinary
 )
 
-var comparisonNames = []string{"cumulative", "stage", "adjacent"}
+// ComparisonWords is the vocabulary of comparisons (a plan's
+// "approaches"), in the order of the constants; stackedBinary has no word.
+var ComparisonWords = words.New[Comparison]("approach", "cumulative", "stage", "adjacent")
 
-func (c Comparison) String() string {
-	if int(c) < len(comparisonNames) {
-		return comparisonNames[c]
-	}
-	return fmt.Sprintf("comparison(%d)", int(c))
+func (c Comparison) String() string { return ComparisonWords.Name(c) }
+
+// MarshalText writes the comparison's word.
+func (c Comparison) MarshalText() ([]byte, error) { return ComparisonWords.Text(c) }
+
+// UnmarshalText reads a comparison's word.
+func (c *Comparison) UnmarshalText(b []byte) (err error) {
+	*c, err = ComparisonWords.Parse(string(b))
+	return err
 }
 
-// ParseComparison turns a name into a Comparison.
-func ParseComparison(s string) (Comparison, error) {
-	for i, n := range comparisonNames {
-		if s == n {
-			return Comparison(i), nil
-		}
-	}
-	return 0, fmt.Errorf("unknown approach %q (want cumulative, stage or adjacent)", s)
-}
+// ParseComparison turns a word into a Comparison.
+func ParseComparison(s string) (Comparison, error) { return ComparisonWords.Parse(s) }
 
 // kernel evaluates one row: log P(y=c | L) and its derivatives in L.
 // Equations and categories are 0-based here: equation m (0..J-2) is the

@@ -16,7 +16,7 @@ func TestRepeatedRowsAreMerged(t *testing.T) {
 		}
 		w := rs.data(rm.Predictors)
 		K := len(w.Predictors)
-		ex := &Data{J: w.J, Predictors: w.Predictors, Levels: w.Levels}
+		ex := &Data{J: w.J, Predictors: w.Predictors, Categories: w.Categories}
 		for i, c := range w.Weights {
 			for r := 0; r < int(c); r++ {
 				ex.Y = append(ex.Y, w.Y[i])

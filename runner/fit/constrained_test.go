@@ -370,7 +370,7 @@ func TestPhiWhenEquationOneSlopesVanish(t *testing.T) {
 			t.Errorf("phi in the normalization phi_1 = 1 should be NaN: %v", res.Phi)
 		}
 		for i, n := range res.ParamNames {
-			if strings.HasPrefix(n, "cut") && !near(res.StdErrors[i], part.StdErrors[i], 1e-6, 1e-9) {
+			if strings.HasPrefix(n, "tau[") && !near(res.StdErrors[i], part.StdErrors[i], 1e-6, 1e-9) {
 				t.Errorf("se(%s) %v, partial %v", n, res.StdErrors[i], part.StdErrors[i])
 			}
 		}
@@ -463,7 +463,7 @@ func TestStereotypeScores(t *testing.T) {
 					}
 					tau := sc.Alpha[m] - sc.Alpha[m+1]
 					if !near(tau, rm.Cutpoints[m], 1e-5, 1e-7) {
-						t.Errorf("cut%d from alpha %.8g, reference %.8g", m+1, tau, rm.Cutpoints[m])
+						t.Errorf("tau[%d] from alpha %.8g, reference %.8g", m+1, tau, rm.Cutpoints[m])
 					}
 				}
 				for k, p := range sc.Predictors {
@@ -582,7 +582,7 @@ func TestTwoConstraintGroups(t *testing.T) {
 			t.Errorf("no parameter %s in %v", n, r2.ParamNames)
 		}
 	}
-	for _, n := range []string{"phi.a[2]", "yr89", "male", "cut1", "age"} {
+	for _, n := range []string{"phi.a[2]", "yr89", "male", "tau[1]", "age"} {
 		i, j := nameIndex(r2.ParamNames, n), nameIndex(r1.ParamNames, n)
 		if !near(r2.Estimates[i], r1.Estimates[j], 1e-6, 1e-9) || !near(r2.StdErrors[i], r1.StdErrors[j], 1e-5, 1e-9) {
 			t.Errorf("%s: %v (%v) vs %v (%v)", n, r2.Estimates[i], r2.StdErrors[i], r1.Estimates[j], r1.StdErrors[j])

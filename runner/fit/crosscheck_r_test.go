@@ -73,7 +73,7 @@ var rLinks = []struct {
 	name string
 }{
 	{fit.Logit, "logit"}, {fit.Probit, "probit"}, {fit.Cloglog, "cloglog"},
-	{fit.Loglog, "loglog"}, {fit.Cauchit, "cauchit"},
+	{fit.Loglog, "loglog"}, {fit.Cauchy, "cauchit"},
 }
 
 // comparisons are the four ways of comparing categories (stage in both
@@ -335,10 +335,21 @@ func (a *agreement) sandwiches(label string, d *fit.Data, r *fit.Result, cluster
 	} {
 		var V []float64
 		var err error
-		if c.plain {
-			V, _, err = fit.SandwichHC0(d, r, c.clusters, sampling)
-		} else {
-			V, _, err = fit.Sandwich(d, r, c.clusters, sampling)
+		switch {
+		case c.plain && c.clusters == nil:
+			V, _, err = fit.SandwichEstimate(d, r, fit.SandwichPlain, nil, sampling)
+		case c.plain:
+			// The cluster-robust estimate without a small-sample factor is
+			// no covariance kind of its own: undo the factor.
+			var info fit.SandwichInfo
+			V, info, err = fit.SandwichEstimate(d, r, fit.Clustered, c.clusters, sampling)
+			for i := range V {
+				V[i] /= info.Factor
+			}
+		case c.clusters == nil:
+			V, _, err = fit.SandwichEstimate(d, r, fit.Sandwich, nil, sampling)
+		default:
+			V, _, err = fit.SandwichEstimate(d, r, fit.Clustered, c.clusters, sampling)
 		}
 		if err != nil {
 			a.t.Fatalf("%s %s: %v", label, c.name, err)
@@ -396,7 +407,7 @@ func testRTwoCategories(t *testing.T) {
 				if !s.sampling {
 					a.logLik(label+" logLik.glm", r.LogLik, vals.Scalar(t, prefix+".ll_glm"))
 					a.errors(label+" observed-information errors", r.ParamNames, r.StdErrors, seObs, tolEst)
-					re := mustFit(t, label, s.d, m, fit.Options{Covariance: fit.CovEIM})
+					re := mustFit(t, label, s.d, m, fit.Options{Covariance: fit.Expected})
 					a.errors(label+" expected-information errors (glm's)", r.ParamNames, re.StdErrors, vals.Get(t, prefix+".se_glm"), tolEst)
 				}
 				a.sandwiches(label, s.d, r, s.clusters, s.sampling, vals, prefix)
@@ -456,7 +467,7 @@ func testRFrequencyWeights(t *testing.T) {
 			a.logLik(lab, r.LogLik, vals.Scalar(t, w+".ll_glm"))
 			a.est(lab, r.ParamNames, r.Estimates, vals.Get(t, w+".theta"), seObs, tolEst)
 			a.errors(lab+" observed-information errors", r.ParamNames, r.StdErrors, seObs, tolEst)
-			re := mustFit(t, lab, c.d, m, fit.Options{Covariance: fit.CovEIM})
+			re := mustFit(t, lab, c.d, m, fit.Options{Covariance: fit.Expected})
 			a.errors(lab+" expected-information errors (glm's)", r.ParamNames, re.StdErrors, vals.Get(t, w+".se_glm"), tolEst)
 			if r.NObs != float64(len(dx.Y)) {
 				t.Errorf("%s: %g observations, want %d", lab, r.NObs, len(dx.Y))

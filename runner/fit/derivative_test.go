@@ -53,7 +53,7 @@ var structCases = []structCase{
 	{"all-constrained", []Effect{Constrained, Constrained, Constrained}},
 }
 
-var allLinks = []Link{Logit, Probit, Cloglog, Loglog, Cauchit}
+var allLinks = LinkWords.All()
 
 type cmpCase struct {
 	cmp      Comparison

@@ -17,7 +17,7 @@ import (
 func tasting() *fit.Data {
 	return &fit.Data{
 		J:          3,
-		Levels:     []string{"low", "mid", "high"},
+		Categories: []string{"low", "mid", "high"},
 		Predictors: []string{"dose"},
 		Y:          []int{0, 1, 2, 0, 1, 2},
 		X:          []float64{0, 0, 0, 1, 1, 1},
@@ -40,16 +40,16 @@ func ExampleFit() {
 	}
 	fmt.Printf("%s: %s, log-likelihood %.4f, AIC %.3f, %d observations\n", r.Name, r.Status, r.LogLik, r.AIC, int(r.NObs))
 	for i, name := range r.ParamNames {
-		fmt.Printf("%-5s %8.4f (%.4f)\n", name, r.Estimates[i], r.StdErrors[i])
+		fmt.Printf("%-6s %8.4f (%.4f)\n", name, r.Estimates[i], r.StdErrors[i])
 	}
 	// A positive slope moves answers towards the higher categories.
 	b := r.Effects[0][0]
 	fmt.Printf("odds of answering above a boundary, dose 1 over dose 0: %.3f\n", math.Exp(b))
 	// Output:
 	// cumulative/parallel/logit: ok, log-likelihood -81.1020, AIC 168.204, 80 observations
-	// cut1    0.0416 (0.3056)
-	// cut2    1.7891 (0.3764)
-	// dose    1.5401 (0.4463)
+	// tau[1]   0.0416 (0.3056)
+	// tau[2]   1.7891 (0.3764)
+	// dose     1.5401 (0.4463)
 	// odds of answering above a boundary, dose 1 over dose 0: 4.665
 }
 
@@ -67,7 +67,7 @@ func ExampleResult_Predict() {
 	}
 	logit := func(p float64) float64 { return math.Log(p / (1 - p)) }
 	// Boundary 1 (low | mid): P(y <= low) is 20/40 at dose 0 and 8/40 at dose 1.
-	fmt.Printf("cut1 %.4f, by hand %.4f\n", r.Cutpoints[0], logit(20.0/40))
+	fmt.Printf("tau[1] %.4f, by hand %.4f\n", r.Cutpoints[0], logit(20.0/40))
 	fmt.Printf("dose at boundary 1 %.4f, by hand %.4f\n", r.Effects[0][0], logit(20.0/40)-logit(8.0/40))
 	// Boundary 2 (mid | high): P(y <= mid) is 35/40 and 22/40.
 	fmt.Printf("dose at boundary 2 %.4f, by hand %.4f\n", r.Effects[1][0], logit(35.0/40)-logit(22.0/40))
@@ -79,15 +79,15 @@ func ExampleResult_Predict() {
 	}
 	for i, dose := range []int{0, 1} {
 		fmt.Printf("dose %d:", dose)
-		for j, level := range r.Levels {
-			fmt.Printf(" %s %.3f (%.3f)", level, pred.Prob[i*pred.J+j], pred.SE[i*pred.J+j])
+		for j, category := range r.Categories {
+			fmt.Printf(" %s %.3f (%.3f)", category, pred.Prob[i*pred.J+j], pred.SE[i*pred.J+j])
 		}
-		fmt.Printf("; most likely %s\n", r.Levels[pred.MostLikely[i]])
+		fmt.Printf("; most likely %s\n", r.Categories[pred.MostLikely[i]])
 	}
 	// Saturated, the standard error of a probability is the binomial one.
 	fmt.Printf("by hand, dose 0: low %.3f mid %.3f high %.3f\n", math.Sqrt(0.5*0.5/40), math.Sqrt(0.375*0.625/40), math.Sqrt(0.125*0.875/40))
 	// Output:
-	// cut1 0.0000, by hand 0.0000
+	// tau[1] 0.0000, by hand 0.0000
 	// dose at boundary 1 1.3863, by hand 1.3863
 	// dose at boundary 2 1.7452, by hand 1.7452
 	// dose 0: low 0.500 (0.079) mid 0.375 (0.077) high 0.125 (0.052); most likely low

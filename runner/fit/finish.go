@@ -17,10 +17,10 @@ const conditionLimit = 1e10
 // comes from: the rows themselves (a local fit) or sums over partitions
 // held elsewhere.
 type source struct {
-	predictors, levels []string
-	J                  int
-	nobs               float64 // weighted number of observations
-	nrows              int
+	predictors, categories []string
+	J                      int
+	nobs                   float64 // weighted number of observations
+	nrows                  int
 	// fitted returns the smallest fitted probability of an observed
 	// category and the number of rows with a negative category probability.
 	fitted func(theta []float64) (minP float64, neg int, err error)
@@ -40,7 +40,7 @@ type source struct {
 // localSource is the source of a fit of the rows of d, evaluated by pr.
 func localSource(d *Data, pr *problem) *source {
 	return &source{
-		predictors: d.Predictors, levels: d.levels(), J: d.J, nobs: d.nobs(), nrows: d.N(),
+		predictors: d.Predictors, categories: d.categories(), J: d.J, nobs: d.nobs(), nrows: d.N(),
 		fitted: func(theta []float64) (float64, int, error) {
 			minP, neg := pr.fittedCheck(theta)
 			return minP, neg, nil
@@ -90,7 +90,7 @@ func finish(src *source, m Model, ly *layout, st newtonState, opt Options) (*Res
 	}
 	r.setCriteria(st.ll)
 	r.CovType = covarianceType(opt)
-	if r.CovType == CovEIM {
+	if r.CovType == Expected {
 		info = negated(src.expected(st.theta))
 	}
 	cov, err := invertSym(info, r.NParams)
@@ -105,7 +105,7 @@ func finish(src *source, m Model, ly *layout, st newtonState, opt Options) (*Res
 // verdict: the estimates, their names and the score summary.
 func (src *source) newResult(m Model, ly *layout, st newtonState) *Result {
 	r := &Result{
-		Model: m, Name: m.Name(), Predictors: src.predictors, Levels: src.levels, J: src.J,
+		Model: m, Name: m.Name(), Predictors: src.predictors, Categories: src.categories, J: src.J,
 		Converged: st.converged, Iterations: st.iters, Reason: st.reason,
 		NObs: src.nobs, NRows: src.nrows, NParams: len(ly.params),
 		ParamNames: ly.names(), Estimates: st.theta, Decrement: st.decrement,
@@ -132,16 +132,16 @@ func (r *Result) setCriteria(ll float64) {
 }
 
 // covarianceType is the kind of information the covariance comes from.
-func covarianceType(opt Options) string {
-	if opt.Covariance == CovEIM {
-		return CovEIM
+func covarianceType(opt Options) Covariance {
+	if opt.Covariance == Expected {
+		return Expected
 	}
-	return CovOIM
+	return Observed
 }
 
 // setCovariance sets the covariance (NParams x NParams, row-major) and the
 // standard errors; parameters marked in drop (nil: none) get NaN in both.
-func (r *Result) setCovariance(cov []float64, drop []bool, covType string) {
+func (r *Result) setCovariance(cov []float64, drop []bool, covType Covariance) {
 	P := r.NParams
 	r.CovType = covType
 	r.StdErrors = make([]float64, P)
@@ -172,7 +172,7 @@ func (r *Result) setCovariance(cov []float64, drop []bool, covType string) {
 // maximum, the covariance cov (NParams x NParams; the rows and columns of
 // dropped parameters are ignored) gives the errors of the others, and the
 // message gives the reasons, then what the result reports in their place.
-func (r *Result) settleNotIdentified(ll float64, cov []float64, drop []bool, covType string, why []string, reported string) {
+func (r *Result) settleNotIdentified(ll float64, cov []float64, drop []bool, covType Covariance, why []string, reported string) {
 	r.Status = StatusNotIdentified
 	r.Separation = nil
 	r.Converged = true // the identified parameters are at their maximum
@@ -461,7 +461,7 @@ func (src *source) describeSeparation(ly *layout, vec []float64) *Separation {
 	if vec == nil {
 		return s
 	}
-	s.nameDirection(ly, vec, src.predictors, src.levels)
+	s.nameDirection(ly, vec, src.predictors, src.categories)
 	if src.rows != nil {
 		s.addEvidence(src.rows)
 	}
@@ -470,7 +470,7 @@ func (src *source) describeSeparation(ly *layout, vec []float64) *Separation {
 
 // nameDirection lists the parameters that carry a quarter or more of the
 // direction vec, and the predictors and category boundaries they belong to.
-func (s *Separation) nameDirection(ly *layout, vec []float64, predictors, levels []string) {
+func (s *Separation) nameDirection(ly *layout, vec []float64, predictors, categories []string) {
 	maxv := 0.0
 	for _, v := range vec {
 		maxv = math.Max(maxv, math.Abs(v))
@@ -495,14 +495,14 @@ func (s *Separation) nameDirection(ly *layout, vec []float64, predictors, levels
 		s.Predictors = append(s.Predictors, predictors[k])
 	}
 	for _, b := range sortedKeys(bounds) {
-		s.Boundaries = append(s.Boundaries, levels[b]+"|"+levels[b+1])
+		s.Boundaries = append(s.Boundaries, BoundaryLabel(categories, b))
 	}
 }
 
 // addEvidence adds the data facts behind a separation: a category observed
 // at a single value of a predictor that takes several (at most 10) values.
 func (s *Separation) addEvidence(d *Data) {
-	lv := d.levels()
+	lv := d.categories()
 	K := len(d.Predictors)
 	for k := 0; k < K; k++ {
 		all := map[float64]bool{}

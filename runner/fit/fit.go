@@ -12,7 +12,7 @@ type Data struct {
 	J          int       // number of categories
 	X          []float64 // row-major N x K, no intercept column
 	Predictors []string  // K names
-	Levels     []string  // J category labels (optional; default "1".."J")
+	Categories []string  // J category labels (optional; default "1".."J")
 	Weights    []float64 // frequency weights (nil: all 1)
 	Offset     []float64 // added to x'b in every equation (nil: none)
 }
@@ -28,19 +28,13 @@ func (o Options) screenAbove() int {
 // N is the number of rows.
 func (d *Data) N() int { return len(d.Y) }
 
-// Covariance types.
-const (
-	CovOIM = "oim" // observed information
-	CovEIM = "eim" // expected information
-)
-
 // Options tunes a fit. The zero value is the default.
 type Options struct {
-	Covariance string    // "oim" (default) or "eim"
-	MaxIter    int       // Newton iterations (default 200)
-	Workers    int       // goroutines over row blocks (default GOMAXPROCS)
-	Start      []float64 // starting values in parameter order (optional)
-	Scoring    bool      // Fisher scoring instead of Newton-Raphson
+	Covariance Covariance // Observed (default) or Expected
+	MaxIter    int        // Newton iterations (default 200)
+	Workers    int        // goroutines over row blocks (default GOMAXPROCS)
+	Start      []float64  // starting values in parameter order (optional)
+	Scoring    bool       // Fisher scoring instead of Newton-Raphson
 	// RandomStarts is the number of random starts of a model with
 	// constrained predictors: 0 means 5, a negative number none.
 	RandomStarts int
@@ -72,7 +66,7 @@ type Result struct {
 	Model      Model
 	Name       string
 	Predictors []string
-	Levels     []string
+	Categories []string
 	J          int
 
 	Status     Status
@@ -92,7 +86,7 @@ type Result struct {
 	Estimates  []float64
 	StdErrors  []float64
 	Cov        []float64 // NParams x NParams, row-major
-	CovType    string
+	CovType    Covariance
 
 	Cutpoints []float64   // tau_1..tau_{J-1}
 	Effects   [][]float64 // [m][k]: slope of predictor k in equation m
@@ -123,7 +117,7 @@ type Result struct {
 type Separation struct {
 	Parameters []string `json:"parameters"` // parameters that diverge
 	Predictors []string `json:"predictors"`
-	Boundaries []string `json:"boundaries"` // "lo|hi" category boundaries involved
+	Boundaries []string `json:"boundaries"` // "lower/upper" category boundaries involved
 	Evidence   []string `json:"evidence"`   // data facts such as `category "1" occurs only at temp = 0`
 }
 
@@ -204,9 +198,9 @@ func (d *Data) nobs() float64 {
 	return s
 }
 
-func (d *Data) levels() []string {
-	if len(d.Levels) == d.J {
-		return d.Levels
+func (d *Data) categories() []string {
+	if len(d.Categories) == d.J {
+		return d.Categories
 	}
 	out := make([]string, d.J)
 	for i := range out {
@@ -230,8 +224,8 @@ func (d *Data) validate() error {
 	if len(d.X) != n*K {
 		return inputErr("X has %d values, want %d rows x %d predictors", len(d.X), n, K)
 	}
-	if d.Levels != nil && len(d.Levels) != d.J {
-		return inputErr("%d category labels for %d categories", len(d.Levels), d.J)
+	if d.Categories != nil && len(d.Categories) != d.J {
+		return inputErr("%d category labels for %d categories", len(d.Categories), d.J)
 	}
 	if d.Weights != nil && len(d.Weights) != n {
 		return inputErr("%d weights for %d rows", len(d.Weights), n)
@@ -261,7 +255,7 @@ func (d *Data) validate() error {
 			return inputErr("row %d: predictor %q has the non-finite value %g", i/K+1, d.Predictors[i%K], v)
 		}
 	}
-	lv := d.levels()
+	lv := d.categories()
 	for c, n := range counts {
 		if n == 0 {
 			return inputErr("category %q of the outcome is never observed: drop it from the category list or merge it with a neighbour", lv[c])

@@ -18,14 +18,14 @@ import (
 // the predicted ordinal score, the observed count of each category and the
 // sum of its predicted probabilities.
 type ScoreGroups struct {
-	Groups   int         `json:"groups"`
-	Levels   []string    `json:"categories"`
-	Low      []float64   `json:"score_low"`  // smallest score in the group
-	High     []float64   `json:"score_high"` // largest score in the group
-	Weight   []float64   `json:"n"`          // observations (sum of weights) in the group
-	Observed [][]float64 `json:"observed"`   // [group][category]
-	Expected [][]float64 `json:"expected"`   // [group][category]
-	group    []int       // row -> group
+	Groups     int         `json:"groups"`
+	Categories []string    `json:"categories"`
+	Low        []float64   `json:"score_low"`  // smallest score in the group
+	High       []float64   `json:"score_high"` // largest score in the group
+	Weight     []float64   `json:"n"`          // observations (sum of weights) in the group
+	Observed   [][]float64 `json:"observed"`   // [group][category]
+	Expected   [][]float64 `json:"expected"`   // [group][category]
+	group      []int       // row -> group
 }
 
 // Lipsitz is the Lipsitz test of a fit with its calibration table.
@@ -115,7 +115,7 @@ func GroupByScore(d *Data, r *Result, groups int) (*ScoreGroups, error) {
 			G++
 		}
 	}
-	t := &ScoreGroups{Groups: G, Levels: r.Levels, Low: make([]float64, G), High: make([]float64, G), Weight: make([]float64, G),
+	t := &ScoreGroups{Groups: G, Categories: r.Categories, Low: make([]float64, G), High: make([]float64, G), Weight: make([]float64, G),
 		Observed: make([][]float64, G), Expected: make([][]float64, G), group: make([]int, n)}
 	for g := 0; g < G; g++ {
 		t.Low[g], t.High[g] = math.Inf(1), math.Inf(-1)
@@ -162,7 +162,7 @@ func LipsitzTest(d *Data, r *Result, groups int, opt Options) (*Lipsitz, error) 
 	// Phase 4: the model with group indicators.
 	n, K := d.N(), len(d.Predictors)
 	K2 := K + G - 1
-	ad := &Data{Y: d.Y, J: d.J, Levels: d.Levels, Weights: d.Weights, Offset: d.Offset,
+	ad := &Data{Y: d.Y, J: d.J, Categories: d.Categories, Weights: d.Weights, Offset: d.Offset,
 		Predictors: append([]string(nil), d.Predictors...), X: make([]float64, n*K2)}
 	for g := 1; g < G; g++ {
 		ad.Predictors = append(ad.Predictors, fmt.Sprintf("score_group_%d", g+1))

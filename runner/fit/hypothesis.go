@@ -155,7 +155,7 @@ func sortedNames(index map[string]int) []string {
 // WaldLinear tests R theta = c in fit r with its covariance.
 func WaldLinear(r *Result, h *Hypothesis) Test {
 	if !r.OK() || r.Cov == nil {
-		return failedTest("wald", "%s has no usable estimates", r.Name)
+		return failedTest(TestWald.String(), "%s has no usable estimates", r.Name)
 	}
 	diff := make([]float64, len(h.R))
 	for i, row := range h.R {
@@ -163,7 +163,7 @@ func WaldLinear(r *Result, h *Hypothesis) Test {
 	}
 	x, err := waldStatDiff(h.R, diff, r.Cov, len(r.Estimates))
 	if err != nil {
-		return failedTest("wald", "%v", err)
+		return failedTest(TestWald.String(), "%v", err)
 	}
-	return chi2Test("wald", x, len(h.R))
+	return chi2Test(TestWald.String(), x, len(h.R))
 }

@@ -132,7 +132,7 @@ func identifiedCovariance(ly *layout, pr *problem, st *newtonState, drop []bool,
 		}
 	}
 	H := st.hess
-	if opt.Covariance == CovEIM {
+	if opt.Covariance == Expected {
 		H = pr.expectedHessian(st.theta)
 	}
 	nk := len(keep)

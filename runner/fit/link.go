@@ -1,8 +1,9 @@
 package fit
 
 import (
-	"fmt"
 	"math"
+
+	"ordplan/internal/words"
 )
 
 // Link is an inverse link function F applied to a linear predictor.
@@ -14,27 +15,26 @@ const (
 	Probit
 	Cloglog
 	Loglog
-	Cauchit
+	Cauchy
 )
 
-var linkNames = []string{"logit", "probit", "cloglog", "loglog", "cauchit"}
+// LinkWords is the vocabulary of links, in the order of the constants:
+// adding a link is adding a constant, its word here and its functions below.
+var LinkWords = words.New[Link]("link", "logit", "probit", "cloglog", "loglog", "cauchy")
 
-func (l Link) String() string {
-	if int(l) < len(linkNames) {
-		return linkNames[l]
-	}
-	return fmt.Sprintf("link(%d)", int(l))
+func (l Link) String() string { return LinkWords.Name(l) }
+
+// MarshalText writes the link's word.
+func (l Link) MarshalText() ([]byte, error) { return LinkWords.Text(l) }
+
+// UnmarshalText reads a link's word.
+func (l *Link) UnmarshalText(b []byte) (err error) {
+	*l, err = LinkWords.Parse(string(b))
+	return err
 }
 
-// ParseLink turns a link name into a Link.
-func ParseLink(s string) (Link, error) {
-	for i, n := range linkNames {
-		if s == n {
-			return Link(i), nil
-		}
-	}
-	return 0, fmt.Errorf("unknown link %q (want logit, probit, cloglog, loglog or cauchit)", s)
-}
+// ParseLink turns a link's word into a Link.
+func ParseLink(s string) (Link, error) { return LinkWords.Parse(s) }
 
 // tail holds log F(z) or log(1-F(z)) with its first two derivatives in z.
 type tail struct{ v, d1, d2 float64 }
@@ -71,7 +71,7 @@ func (l Link) lower(z float64) tail {
 	case Loglog:
 		t := Cloglog.upper(-z)
 		return tail{t.v, -t.d1, t.d2}
-	case Cauchit:
+	case Cauchy:
 		F := cauchyCDF(z)
 		f := 1 / (math.Pi * (1 + z*z))
 		r := f / F
@@ -87,7 +87,7 @@ func (l Link) upper(z float64) tail {
 	case Logit:
 		v, Fc, F := logitTail(-z)
 		return tail{v, -F, -F * Fc}
-	case Probit, Cauchit:
+	case Probit, Cauchy:
 		t := l.lower(-z)
 		return tail{t.v, -t.d1, t.d2}
 	case Cloglog:
@@ -112,7 +112,7 @@ func (l Link) cdf(z float64) float64 {
 		return -math.Expm1(-math.Exp(z))
 	case Loglog:
 		return math.Exp(-math.Exp(-z))
-	case Cauchit:
+	case Cauchy:
 		return cauchyCDF(z)
 	}
 	panic("fit: unknown link")
@@ -132,7 +132,7 @@ func (l Link) Quantile(p float64) float64 {
 		return math.Log(-math.Log1p(-p))
 	case Loglog:
 		return -math.Log(-math.Log(p))
-	case Cauchit:
+	case Cauchy:
 		return math.Tan(math.Pi * (p - 0.5))
 	}
 	panic("fit: unknown link")
@@ -152,7 +152,7 @@ func (l Link) logDensity(z float64) (float64, float64) {
 	case Loglog:
 		u := math.Exp(-z)
 		return -z - u, u - 1
-	case Cauchit:
+	case Cauchy:
 		return -math.Log(math.Pi) - math.Log1p(z*z), -2 * z / (1 + z*z)
 	}
 	panic("fit: unknown link")

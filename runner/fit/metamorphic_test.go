@@ -46,7 +46,7 @@ func TestShuffledRowsGiveSameFit(t *testing.T) {
 	d := gssData(t)
 	n, K := d.N(), len(d.Predictors)
 	perm := rand.New(rand.NewPCG(9, 9)).Perm(n)
-	s := &Data{J: d.J, Predictors: d.Predictors, Levels: d.Levels}
+	s := &Data{J: d.J, Predictors: d.Predictors, Categories: d.Categories}
 	for _, i := range perm {
 		s.Y = append(s.Y, d.Y[i])
 		s.X = append(s.X, d.X[i*K:(i+1)*K]...)
@@ -58,10 +58,10 @@ func TestShuffledRowsGiveSameFit(t *testing.T) {
 
 func TestDuplicatedRowsEqualWeightTwo(t *testing.T) {
 	d := gssData(t)
-	dup := &Data{J: d.J, Predictors: d.Predictors, Levels: d.Levels}
+	dup := &Data{J: d.J, Predictors: d.Predictors, Categories: d.Categories}
 	dup.Y = append(append(dup.Y, d.Y...), d.Y...)
 	dup.X = append(append(dup.X, d.X...), d.X...)
-	w := &Data{J: d.J, Predictors: d.Predictors, Levels: d.Levels, Y: d.Y, X: d.X}
+	w := &Data{J: d.J, Predictors: d.Predictors, Categories: d.Categories, Y: d.Y, X: d.X}
 	for range d.Y {
 		w.Weights = append(w.Weights, 2)
 	}
@@ -91,7 +91,7 @@ func TestReversedCategoriesFlipCumulativeLogit(t *testing.T) {
 		q := d.J - 1
 		for j := 0; j < q; j++ {
 			if !near(a.Cutpoints[j], -b.Cutpoints[q-1-j], 1e-7, 1e-9) {
-				t.Errorf("cut%d %v vs -%v", j+1, a.Cutpoints[j], b.Cutpoints[q-1-j])
+				t.Errorf("tau[%d] %v vs -%v", j+1, a.Cutpoints[j], b.Cutpoints[q-1-j])
 			}
 			for k := range d.Predictors {
 				if !near(a.Effects[j][k], -b.Effects[q-1-j][k], 1e-7, 1e-9) {
@@ -175,7 +175,7 @@ func TestBackwardStageIsReversedForward(t *testing.T) {
 	q := d.J - 1
 	for j := 0; j < q; j++ {
 		if !near(b.Cutpoints[j], -f.Cutpoints[q-1-j], 1e-7, 1e-9) {
-			t.Errorf("cut%d %v vs %v", j+1, b.Cutpoints[j], -f.Cutpoints[q-1-j])
+			t.Errorf("tau[%d] %v vs %v", j+1, b.Cutpoints[j], -f.Cutpoints[q-1-j])
 		}
 		for k := range d.Predictors {
 			if !near(b.Effects[j][k], -f.Effects[q-1-j][k], 1e-7, 1e-9) {

@@ -3,6 +3,8 @@ package fit
 import (
 	"fmt"
 	"strings"
+
+	"ordplan/internal/words"
 )
 
 // Effect is the effect structure of one predictor across the J-1 equations.
@@ -38,9 +40,55 @@ type Model struct {
 	GroupNames []string
 }
 
-// Name is a short identifier such as "cumulative/partial/logit".
+// Structure is the effect structure of a whole model: a column of the
+// typology of models (a plan's models.effects).
+type Structure int
+
+// The effect structures of models.
+const (
+	ParallelEffects    Structure = iota // every predictor parallel
+	PartialEffects                      // some predictors nonparallel, the others parallel
+	ConstrainedEffects                  // some predictors constrained, the others parallel
+	NonparallelEffects                  // every predictor nonparallel
+	StereotypeEffects                   // adjacent comparison, every predictor in one constrained group
+)
+
+// StructureWords is the vocabulary of effect structures, in the order of
+// the constants.
+var StructureWords = words.New[Structure]("effect structure", "parallel", "partial", "constrained", "nonparallel", "stereotype")
+
+func (s Structure) String() string { return StructureWords.Name(s) }
+
+// MarshalText writes the structure's word.
+func (s Structure) MarshalText() ([]byte, error) { return StructureWords.Text(s) }
+
+// UnmarshalText reads a structure's word.
+func (s *Structure) UnmarshalText(b []byte) (err error) {
+	*s, err = StructureWords.Parse(string(b))
+	return err
+}
+
+// TauName is the name of boundary parameter m (1-based): "tau[m]", indexed
+// like the nonparallel slopes x[m] of the same boundary.
+func TauName(m int) string { return fmt.Sprintf("tau[%d]", m) }
+
+// BoundaryLabel labels boundary m (0-based) between two categories by
+// their labels, lower first: "SD/D".
+func BoundaryLabel(categories []string, m int) string {
+	return categories[m] + "/" + categories[m+1]
+}
+
+// ModelID is the identifier approach/effects/link of a model, the one way
+// models are named in tables, logs, JSON and rules. approach is the
+// comparison's word with its direction (ComparisonName); effects is an
+// effect structure's word or the name of an auxiliary fit.
+func ModelID(approach, effects string, l Link) string {
+	return approach + "/" + effects + "/" + l.String()
+}
+
+// Name is the model's identifier, such as "cumulative/partial/logit".
 func (m Model) Name() string {
-	return fmt.Sprintf("%s/%s/%s", m.ComparisonName(), m.Level(), m.Link)
+	return ModelID(m.ComparisonName(), m.Structure().String(), m.Link)
 }
 
 // ComparisonName includes the stage direction.
@@ -51,8 +99,8 @@ func (m Model) ComparisonName() string {
 	return m.Comparison.String()
 }
 
-// Level names the column of the typology the model belongs to.
-func (m Model) Level() string {
+// Structure gives the column of the typology the model belongs to.
+func (m Model) Structure() Structure {
 	var np, cons, par int
 	for _, e := range m.Effects {
 		switch e {
@@ -66,15 +114,15 @@ func (m Model) Level() string {
 	}
 	switch {
 	case len(m.Effects) == 0 || (np == 0 && cons == 0):
-		return "parallel"
+		return ParallelEffects
 	case cons == 0 && par == 0:
-		return "nonparallel"
+		return NonparallelEffects
 	case cons == 0:
-		return "partial"
+		return PartialEffects
 	case np == 0 && par == 0 && m.Comparison == Adjacent && len(m.groupNames()) == 1:
-		return "stereotype"
+		return StereotypeEffects
 	default:
-		return "constrained"
+		return ConstrainedEffects
 	}
 }
 
@@ -150,7 +198,7 @@ func newLayout(m Model, J int, predictors []string) (*layout, error) {
 	ly := &layout{J: J, K: K, groupOf: make([]int, K), slope: make([]int, K)}
 	for j := 0; j < q; j++ {
 		ly.cut = append(ly.cut, len(ly.params))
-		ly.params = append(ly.params, param{kind: pCut, m: j, name: fmt.Sprintf("cut%d", j+1)})
+		ly.params = append(ly.params, param{kind: pCut, m: j, name: TauName(j + 1)})
 	}
 	// dense group indices in order of first use
 	dense := map[int]int{}

@@ -248,7 +248,7 @@ func (a *auxiliary) normalizedFit(src *source, d *Data, m Model, ly *layout, pr 
 	q := d.J - 1
 	hth := rm.h(ast.theta)
 	H := ast.hess
-	if opt.Covariance == CovEIM {
+	if opt.Covariance == Expected {
 		_, H = rm.chain(ast.theta, make([]float64, len(hth)), pp.expectedHessian(hth))
 	}
 	info := negated(H)

@@ -122,7 +122,7 @@ func NullModel(m Model) Model {
 // FitNull fits the thresholds-only model of m to the outcome (weights and
 // offset) of d.
 func FitNull(d *Data, m Model, opt Options) (*Result, error) {
-	nd := &Data{Y: d.Y, J: d.J, Levels: d.Levels, Weights: d.Weights, Offset: d.Offset}
+	nd := &Data{Y: d.Y, J: d.J, Categories: d.Categories, Weights: d.Weights, Offset: d.Offset}
 	opt.Start = nil
 	return Fit(nd, NullModel(m), opt)
 }

@@ -5,11 +5,60 @@ import (
 	"math"
 	"strings"
 
+	"ordplan/internal/words"
+
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // Test is the outcome of one chi-square test.
+// TestKind names a test: of the parallel-lines assumption (all five), of a
+// rule (lr, wald, score, brant), of stepwise selection (wald, lr), of a
+// hypothesis (wald).
+type TestKind int
+
+// The tests.
+const (
+	TestBrant TestKind = iota
+	TestLR
+	TestScore
+	TestWald
+	TestWolfeGould
+)
+
+// TestWords is the vocabulary of tests, in the order of the constants.
+var TestWords = words.New[TestKind]("test", "brant", "lr", "score", "wald", "wolfe_gould")
+
+func (k TestKind) String() string { return TestWords.Name(k) }
+
+// MarshalText writes the test's word.
+func (k TestKind) MarshalText() ([]byte, error) { return TestWords.Text(k) }
+
+// UnmarshalText reads a test's word.
+func (k *TestKind) UnmarshalText(b []byte) (err error) {
+	*k, err = TestWords.Parse(string(b))
+	return err
+}
+
+// Title is the test's name in sentences ("likelihood-ratio", "Wald").
+func (k TestKind) Title() string {
+	switch k {
+	case TestLR:
+		return "likelihood-ratio"
+	case TestWald:
+		return "Wald"
+	case TestScore:
+		return "score"
+	case TestBrant:
+		return "Brant"
+	case TestWolfeGould:
+		return "Wolfe-Gould"
+	}
+	return k.String()
+}
+
+// Test is the result of one test; Name is the test's word (TestKind), or a
+// predictor's name for per-variable tests.
 type Test struct {
 	Name   string  `json:"name"`
 	OK     bool    `json:"ok"`
@@ -48,7 +97,7 @@ func ChiSquareP(x float64, df int) float64 {
 // in the number of parameters.
 func LRTest(restricted, full *Result) Test {
 	if restricted == nil || full == nil {
-		return failedTest("lr", "a model was not fitted")
+		return failedTest(TestLR.String(), "a model was not fitted")
 	}
 	if !restricted.OK() || !full.OK() {
 		var bad []string
@@ -57,13 +106,13 @@ func LRTest(restricted, full *Result) Test {
 				bad = append(bad, fmt.Sprintf("%s: %s", r.Name, r.Status))
 			}
 		}
-		return failedTest("lr", "a model has no finite maximum or did not converge (%s)", strings.Join(bad, "; "))
+		return failedTest(TestLR.String(), "a model has no finite maximum or did not converge (%s)", strings.Join(bad, "; "))
 	}
 	df := full.NParams - restricted.NParams
 	if df <= 0 {
-		return failedTest("lr", "%s does not have more parameters than %s", full.Name, restricted.Name)
+		return failedTest(TestLR.String(), "%s does not have more parameters than %s", full.Name, restricted.Name)
 	}
-	t := chi2Test("lr", 2*(full.LogLik-restricted.LogLik), df)
+	t := chi2Test(TestLR.String(), 2*(full.LogLik-restricted.LogLik), df)
 	t.LLRestricted, t.LLFull = restricted.LogLik, full.LogLik
 	return t
 }
@@ -72,7 +121,7 @@ func LRTest(restricted, full *Result) Test {
 // slope in every equation (the predictors must be nonparallel in r).
 func WaldEqualSlopes(r *Result, predictors []string) Test {
 	if !r.OK() {
-		return failedTest("wald", "%s has no finite maximum or did not converge", r.Name)
+		return failedTest(TestWald.String(), "%s has no finite maximum or did not converge", r.Name)
 	}
 	P := len(r.Estimates)
 	q := r.J - 1
@@ -80,7 +129,7 @@ func WaldEqualSlopes(r *Result, predictors []string) Test {
 	for _, name := range predictors {
 		k := indexOf(r.Predictors, name)
 		if k < 0 || r.Model.Effects[k] != Nonparallel {
-			return failedTest("wald", "%s is not a nonparallel predictor of %s", name, r.Name)
+			return failedTest(TestWald.String(), "%s is not a nonparallel predictor of %s", name, r.Name)
 		}
 		first := indexOf(r.ParamNames, fmt.Sprintf("%s[1]", name))
 		for m := 0; m+1 < q; m++ {
@@ -92,9 +141,9 @@ func WaldEqualSlopes(r *Result, predictors []string) Test {
 	}
 	x, err := waldStat(rows, r.Estimates, r.Cov)
 	if err != nil {
-		return failedTest("wald", "%v", err)
+		return failedTest(TestWald.String(), "%v", err)
 	}
-	return chi2Test("wald", x, len(rows))
+	return chi2Test(TestWald.String(), x, len(rows))
 }
 
 // waldStat is (R t)' (R V R')^-1 (R t).
@@ -148,20 +197,20 @@ func quadInv(M *mat.SymDense, x []float64) (float64, error) {
 // parallel predictors may be nonparallel): g' (-H)^-1 g.
 func ScoreTest(d *Data, restricted *Result, full Model) Test {
 	if !restricted.OK() {
-		return failedTest("score", "%s has no finite maximum or did not converge", restricted.Name)
+		return failedTest(TestScore.String(), "%s has no finite maximum or did not converge", restricted.Name)
 	}
 	ly, err := newLayout(full, d.J, d.Predictors)
 	if err != nil {
-		return failedTest("score", "%v", err)
+		return failedTest(TestScore.String(), "%v", err)
 	}
 	theta, err := thetaFromEffects(ly, full, restricted.Cutpoints, restricted.Effects)
 	if err != nil {
-		return failedTest("score", "%v", err)
+		return failedTest(TestScore.String(), "%v", err)
 	}
 	pr := newProblem(d.design(), full, ly, 0)
 	a := pr.evaluate(theta, 2, false)
 	if a.bad {
-		return failedTest("score", "the restricted estimates give a zero probability to an observed category")
+		return failedTest(TestScore.String(), "the restricted estimates give a zero probability to an observed category")
 	}
 	g := pr.gradient(theta, a)
 	H := pr.hessian(theta, a, true)
@@ -174,9 +223,9 @@ func ScoreTest(d *Data, restricted *Result, full Model) Test {
 	}
 	x, err := quadInv(M, g)
 	if err != nil {
-		return failedTest("score", "the information of %s is singular at the restricted estimates", full.Name())
+		return failedTest(TestScore.String(), "the information of %s is singular at the restricted estimates", full.Name())
 	}
-	return chi2Test("score", x, P-restricted.NParams)
+	return chi2Test(TestScore.String(), x, P-restricted.NParams)
 }
 
 // thetaFromEffects writes cutpoints and an effects matrix into the

@@ -124,7 +124,7 @@ func TestParallelLinesCumulative(t *testing.T) {
 					checkChi2(t, "lr "+p, LRTest(r, np), w)
 				}
 			}
-			sw := Stepwise(d, Model{Comparison: Cumulative, Link: Logit}, rt.Predictors, 0.05, "wald", Options{})
+			sw := Stepwise(d, Model{Comparison: Cumulative, Link: Logit}, rt.Predictors, 0.05, TestWald, Options{})
 			if ct.Stepwise.OK != nil && !*ct.Stepwise.OK {
 				if sw.OK {
 					t.Errorf("stepwise should fail as in the reference")

@@ -77,7 +77,7 @@ func PartitionDiagnostics(d *Data, m Model, theta []float64) (int, float64, erro
 type Whole struct {
 	J          int
 	Predictors []string
-	Levels     []string
+	Categories []string
 	Counts     []float64 // weighted count of each category
 	Rows       int
 	// Spread of the predictors over all partitions (nil: not known). With
@@ -167,8 +167,8 @@ func FitFromSums(w Whole, m Model, sums func(theta []float64, order int) (*Sums,
 	for c, n := range w.Counts {
 		if n <= 0 {
 			lv := fmt.Sprint(c + 1)
-			if c < len(w.Levels) {
-				lv = w.Levels[c]
+			if c < len(w.Categories) {
+				lv = w.Categories[c]
 			}
 			return nil, inputErr("category %q of the outcome is never observed", lv)
 		}
@@ -181,8 +181,8 @@ func FitFromSums(w Whole, m Model, sums func(theta []float64, order int) (*Sums,
 	if len(constrainedPredictors(m)) > 0 {
 		return nil, inputErr("partitioned fits of constrained models are not available (their multi-start search needs the rows): fit %s locally", m.Name())
 	}
-	if opt.Covariance == CovEIM {
-		return nil, inputErr("partitioned fits give observed-information errors only (covariance %q): the expected information needs the rows", CovOIM)
+	if opt.Covariance == Expected {
+		return nil, inputErr("partitioned fits give observed-information errors only (covariance %q): the expected information needs the rows", Observed)
 	}
 	if opt.MaxIter <= 0 {
 		opt.MaxIter = 200
@@ -213,7 +213,7 @@ func FitFromSums(w Whole, m Model, sums func(theta []float64, order int) (*Sums,
 		return nil, evalErr
 	}
 	src := &source{
-		predictors: w.Predictors, levels: cd.levelsOr(w.Levels), J: w.J, nobs: nobs, nrows: w.Rows,
+		predictors: w.Predictors, categories: cd.categoriesOr(w.Categories), J: w.J, nobs: nobs, nrows: w.Rows,
 		fitted: func(theta []float64) (float64, int, error) {
 			if diag == nil {
 				return 0, 0, nil
@@ -233,9 +233,9 @@ func FitFromSums(w Whole, m Model, sums func(theta []float64, order int) (*Sums,
 	return r, err
 }
 
-func (d *Data) levelsOr(l []string) []string {
+func (d *Data) categoriesOr(l []string) []string {
 	if len(l) == d.J {
 		return l
 	}
-	return d.levels()
+	return d.categories()
 }

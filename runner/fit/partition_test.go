@@ -20,7 +20,7 @@ func partitioned(t *testing.T, d *Data, m Model, nparts int, opt Options) *Resul
 	for _, y := range d.Y {
 		counts[y]++
 	}
-	w := Whole{J: d.J, Predictors: d.Predictors, Levels: d.Levels, Counts: counts, Rows: n, Spread: &Spread{}}
+	w := Whole{J: d.J, Predictors: d.Predictors, Categories: d.Categories, Counts: counts, Rows: n, Spread: &Spread{}}
 	for _, p := range parts {
 		w.Spread.Merge(SpreadOf(p))
 	}

@@ -19,7 +19,7 @@ type Prediction struct {
 	Expected   []float64 // N: sum_j j P(y = j), categories scored 1..J
 	ExpectedSE []float64
 	MostLikely []int     // N: 0-based category with the largest probability
-	Linear     []float64 // N x (J-1): L_m = cut_m - x'b_m - offset
+	Linear     []float64 // N x (J-1): L_m = tau_m - x'b_m - offset
 	LinearSE   []float64
 	Negative   []bool // a category probability is negative (cumulative partial/nonparallel)
 }
@@ -368,7 +368,7 @@ func (r *Result) marginalEffects(d *Data, binaryOf []bool, level float64) ([]Mar
 		}
 		for j := 0; j < J; j++ {
 			se := math.Sqrt(quadForm(jac[j*P:(j+1)*P], r.Cov))
-			me := MarginalEffect{Predictor: r.Predictors[k], Category: r.Levels[j], Discrete: binary, Effect: ame[j], SE: se}
+			me := MarginalEffect{Predictor: r.Predictors[k], Category: r.Categories[j], Discrete: binary, Effect: ame[j], SE: se}
 			if se > 0 {
 				me.Z = ame[j] / se
 				me.P = 2 * distuv.UnitNormal.Survival(math.Abs(me.Z))

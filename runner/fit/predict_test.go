@@ -51,7 +51,7 @@ func TestPredictionsAndMarginalEffects(t *testing.T) {
 		}
 		for _, me := range ames {
 			k := indexOf(d.Predictors, me.Predictor)
-			j := indexOf(r.Levels, me.Category)
+			j := indexOf(r.Categories, me.Category)
 			fd := 0.0
 			for i := 0; i < d.N(); i++ {
 				x := append([]float64(nil), d.X[i*K:(i+1)*K]...)
@@ -153,7 +153,7 @@ func TestMarginalEffectsAtMeans(t *testing.T) {
 	}
 	pr, _ := r.problem()
 	for _, e := range me {
-		k, j := indexOf(d.Predictors, e.Predictor), indexOf(r.Levels, e.Category)
+		k, j := indexOf(d.Predictors, e.Predictor), indexOf(r.Categories, e.Category)
 		x := append([]float64(nil), mean...)
 		p1, p0 := make([]float64, r.J), make([]float64, r.J)
 		var fd float64

@@ -98,6 +98,10 @@ func loadRef(t testing.TB, name string) *refSet {
 	if err := json.Unmarshal(b, &rs.models); err != nil {
 		t.Fatal(err)
 	}
+	for i := range rs.models {
+		m := &rs.models[i]
+		m.Estimates, m.SEOIM, m.SEEIM = refdata.ParamNames(m.Estimates), refdata.ParamNames(m.SEOIM), refdata.ParamNames(m.SEEIM)
+	}
 	f, err := os.Open(filepath.Join(refDir, name+".csv"))
 	if err != nil {
 		t.Fatal(err)
@@ -124,7 +128,7 @@ func loadRef(t testing.TB, name string) *refSet {
 func (rs *refSet) data(preds []string) *Data {
 	y := rs.cols[rs.labels.Outcome]
 	n := len(y)
-	d := &Data{J: len(rs.labels.Labels), Levels: rs.labels.Labels, Predictors: preds}
+	d := &Data{J: len(rs.labels.Labels), Categories: rs.labels.Labels, Predictors: preds}
 	d.Y = make([]int, n)
 	for i, v := range y {
 		d.Y[i] = int(v) - 1

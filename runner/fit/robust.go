@@ -6,19 +6,12 @@ import (
 	"sort"
 )
 
-// Sandwich covariance types.
-const (
-	CovRobust    = "robust"     // heteroskedasticity-consistent, with the factor N/(N-P) (HC1)
-	CovRobustHC0 = "robust_hc0" // the same without the factor (HC0)
-	CovCluster   = "cluster"    // cluster-robust (CR1)
-)
-
 // SandwichInfo describes how a sandwich covariance was computed.
 type SandwichInfo struct {
-	Type     string  `json:"type"`
-	Clusters int     `json:"clusters,omitempty"`
-	Factor   float64 `json:"small_sample_factor"`
-	Formula  string  `json:"formula"`
+	Type     Covariance `json:"type"`
+	Clusters int        `json:"clusters,omitempty"`
+	Factor   float64    `json:"small_sample_factor"`
+	Formula  string     `json:"formula"`
 	// Trace is tr(A^-1 B) without the factor: the penalty of Takeuchi's
 	// criterion (see TIC).
 	Trace float64 `json:"-"`
@@ -64,29 +57,35 @@ func (p *problem) rowScores(theta []float64, fn func(i int, s []float64)) error 
 	return nil
 }
 
-// Sandwich returns the sandwich covariance A^-1 B A^-1 of a fit, where A is
+// SandwichEstimate returns the sandwich covariance A^-1 B A^-1 of a fit, where A is
 // the observed information and B the outer product of the scores:
 //
 //	frequency weights, no clusters: B = sum_i w_i s_i s_i'          factor N/(N-P)        (HC1)
-//	probability weights, no clusters: B = sum_i (w_i s_i)(w_i s_i)'  factor n/(n-P)        (HC1)
+//	sampling weights, no clusters:     B = sum_i (w_i s_i)(w_i s_i)'  factor n/(n-P)        (HC1)
 //	clusters c: B = sum_c S_c S_c', S_c = sum_{i in c} w_i s_i       factor G/(G-1) (N-1)/(N-P) (CR1)
 //
 // with N the number of observations (sum of frequency weights, or rows for
-// probability weights), P the parameters and G the clusters. These are the
+// sampling weights), P the parameters and G the clusters. These are the
 // usual estimators of White (1980) and Liang & Zeger (1986) with their
 // customary small-sample factors.
-func Sandwich(d *Data, r *Result, clusters []string, probability bool) ([]float64, SandwichInfo, error) {
-	return sandwich(d, r, clusters, probability, true)
-}
-
-// SandwichHC0 is Sandwich without a small-sample factor (HC0 and its
-// cluster analogue).
-func SandwichHC0(d *Data, r *Result, clusters []string, probability bool) ([]float64, SandwichInfo, error) {
-	return sandwich(d, r, clusters, probability, false)
+//
+// kind is Sandwich, SandwichPlain (no small-sample factor) or Clustered
+// (which needs clusters, one id per row).
+func SandwichEstimate(d *Data, r *Result, kind Covariance, clusters []string, probability bool) ([]float64, SandwichInfo, error) {
+	switch kind {
+	case Sandwich, SandwichPlain:
+		return sandwich(d, r, nil, probability, kind == Sandwich)
+	case Clustered:
+		if clusters == nil {
+			return nil, SandwichInfo{Type: kind}, fmt.Errorf("clustered covariance needs a cluster id for every row")
+		}
+		return sandwich(d, r, clusters, probability, true)
+	}
+	return nil, SandwichInfo{Type: kind}, fmt.Errorf("%s covariance is not a sandwich estimate", kind)
 }
 
 func sandwich(d *Data, r *Result, clusters []string, probability, factor bool) ([]float64, SandwichInfo, error) {
-	info := SandwichInfo{Type: CovRobust}
+	info := SandwichInfo{Type: Sandwich}
 	if !r.OK() {
 		return nil, info, fmt.Errorf("%s has no usable estimates", r.Name)
 	}
@@ -119,7 +118,7 @@ func sandwich(d *Data, r *Result, clusters []string, probability, factor bool) (
 		if len(clusters) != d.N() {
 			return nil, info, fmt.Errorf("%d cluster ids for %d rows", len(clusters), d.N())
 		}
-		info.Type = CovCluster
+		info.Type = Clustered
 		sums := map[string][]float64{}
 		err = pr.rowScores(theta, func(i int, s []float64) {
 			cs, ok := sums[clusters[i]]
@@ -158,7 +157,7 @@ func sandwich(d *Data, r *Result, clusters []string, probability, factor bool) (
 		N = d.nobs()
 	}
 	switch info.Type {
-	case CovCluster:
+	case Clustered:
 		G := float64(info.Clusters)
 		if G < 2 {
 			return nil, info, fmt.Errorf("cluster-robust errors need at least 2 clusters, got %d", info.Clusters)
@@ -172,8 +171,8 @@ func sandwich(d *Data, r *Result, clusters []string, probability, factor bool) (
 	if !factor {
 		info.Factor = 1
 		info.Formula = "A^-1 B A^-1 without a small-sample factor"
-		if info.Type == CovRobust {
-			info.Type = CovRobustHC0
+		if info.Type == Sandwich {
+			info.Type = SandwichPlain
 		}
 	}
 	for a := 0; a < P; a++ {
@@ -208,7 +207,7 @@ func sandwichProduct(Ainv, B []float64, P int) []float64 {
 
 // UseCovariance replaces the covariance of a fit (and its standard errors)
 // by V, recording its type.
-func (r *Result) UseCovariance(V []float64, kind string) {
+func (r *Result) UseCovariance(V []float64, kind Covariance) {
 	P := len(r.Estimates)
 	r.Cov = V
 	r.CovType = kind

@@ -63,7 +63,11 @@ func TestSandwichAgainstHandComputation(t *testing.T) {
 		factor   float64
 	}{{nil, Bhc, N / (N - float64(P))}, {clusters, Bcl, G / (G - 1) * (N - 1) / (N - float64(P))}} {
 		want := sandwichProduct(r.Cov, c.B, P)
-		got, info, err := Sandwich(d, r, c.clusters, false)
+		kind := Sandwich
+		if c.clusters != nil {
+			kind = Clustered
+		}
+		got, info, err := SandwichEstimate(d, r, kind, c.clusters, false)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -90,11 +94,11 @@ func TestSandwichFrequencyWeights(t *testing.T) {
 	dup.Y = append(append(dup.Y, d.Y...), d.Y...)
 	dup.X = append(append(dup.X, d.X...), d.X...)
 	m := Model{Comparison: Stage, Link: Logit, Effects: allEffects(len(d.Predictors), Parallel)}
-	a, _, err := Sandwich(w, fitOK(t, w, m), nil, false)
+	a, _, err := SandwichEstimate(w, fitOK(t, w, m), Sandwich, nil, false)
 	if err != nil {
 		t.Fatal(err)
 	}
-	b, _, _ := Sandwich(dup, fitOK(t, dup, m), nil, false)
+	b, _, _ := SandwichEstimate(dup, fitOK(t, dup, m), Sandwich, nil, false)
 	for i := range a {
 		if !near(a[i], b[i], 1e-6, 1e-12) {
 			t.Fatalf("entry %d: %v vs %v", i, a[i], b[i])
@@ -106,9 +110,9 @@ func TestSandwichFrequencyWeights(t *testing.T) {
 func TestSandwichHC0(t *testing.T) {
 	d := gssData(t) // General Social Survey 1977/1989 extract, Long (1997)
 	r := fitOK(t, d, Model{Comparison: Adjacent, Link: Logit, Effects: allEffects(6, Parallel)})
-	hc1, i1, _ := Sandwich(d, r, nil, false)
-	hc0, i0, err := SandwichHC0(d, r, nil, false)
-	if err != nil || i0.Type != CovRobustHC0 || i0.Factor != 1 {
+	hc1, i1, _ := SandwichEstimate(d, r, Sandwich, nil, false)
+	hc0, i0, err := SandwichEstimate(d, r, SandwichPlain, nil, false)
+	if err != nil || i0.Type != SandwichPlain || i0.Factor != 1 {
 		t.Fatalf("%v %+v", err, i0)
 	}
 	for k := range hc0 {

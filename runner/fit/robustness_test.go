@@ -22,7 +22,7 @@ var robComparisons = []struct {
 	backward bool
 }{{Cumulative, false}, {Stage, false}, {Stage, true}, {Adjacent, false}}
 
-var robLinks = []Link{Logit, Probit, Cloglog, Loglog, Cauchit}
+var robLinks = LinkWords.All()
 
 // robLatent simulates an ordered outcome from a latent variable
 // z = x'beta + logistic noise, cut at the empirical quantiles given by
@@ -367,8 +367,8 @@ func TestRobustnessSeparationIsFound(t *testing.T) {
 		boundary string
 		known    string // a known problem this case shows (skipped while it lasts)
 	}{
-		{"quasi-complete, category 1 only at g = 1", quasi, []Effect{Nonparallel, Parallel}, "g", "1|2", ""},
-		{"quasi-complete, category 1 only at g = 0", &flipped, []Effect{Nonparallel, Parallel}, "g", "1|2", ""},
+		{"quasi-complete, category 1 only at g = 1", quasi, []Effect{Nonparallel, Parallel}, "g", "1/2", ""},
+		{"quasi-complete, category 1 only at g = 0", &flipped, []Effect{Nonparallel, Parallel}, "g", "1/2", ""},
 		{"complete", complete, []Effect{Parallel, Parallel}, "x", "", ""},
 	}
 	for _, cs := range cases {

@@ -28,8 +28,8 @@ func (r *Result) CheckShape(m Model, predictors []string) error {
 	if !slices.Equal(r.Predictors, predictors) {
 		return fmt.Errorf("the result has predictors %v, not %v", r.Predictors, predictors)
 	}
-	if r.J < 2 || len(r.Levels) != r.J {
-		return fmt.Errorf("the result has %d categories and %d labels", r.J, len(r.Levels))
+	if r.J < 2 || len(r.Categories) != r.J {
+		return fmt.Errorf("the result has %d categories and %d labels", r.J, len(r.Categories))
 	}
 	ly, err := newLayout(m, r.J, predictors)
 	if err != nil {

@@ -142,7 +142,7 @@ func (r *Result) effectRows(name string, discrete bool, eff, jac []float64, leve
 	out := make([]MarginalEffect, len(eff))
 	for j := range eff {
 		se := math.Sqrt(quadForm(jac[j*P:(j+1)*P], r.Cov))
-		me := MarginalEffect{Predictor: name, Category: r.Levels[j], Discrete: discrete, Effect: eff[j], SE: se}
+		me := MarginalEffect{Predictor: name, Category: r.Categories[j], Discrete: discrete, Effect: eff[j], SE: se}
 		if se > 0 {
 			me.Z = eff[j] / se
 			me.P = 2 * distuv.UnitNormal.Survival(math.Abs(me.Z))

@@ -19,7 +19,7 @@ type StepwiseResult struct {
 	OK               bool           `json:"ok"`
 	Reason           string         `json:"reason,omitempty"`
 	Alpha            float64        `json:"alpha"`
-	Test             string         `json:"test"`
+	Test             TestKind       `json:"test"`
 	Steps            []StepwiseStep `json:"steps"`
 	FinalParallel    []string       `json:"final_parallel"`
 	FinalNonparallel []string       `json:"final_nonparallel"`
@@ -46,7 +46,7 @@ type Term struct {
 // information; or likelihood ratio against the model with it parallel) and
 // make parallel the one with the largest p-value at or above alpha; stop
 // when none qualifies. base supplies the comparison, direction and link.
-func Stepwise(d *Data, base Model, candidates []string, alpha float64, test string, opt Options) *StepwiseResult {
+func Stepwise(d *Data, base Model, candidates []string, alpha float64, test TestKind, opt Options) *StepwiseResult {
 	terms := make([]Term, len(candidates))
 	for i, c := range candidates {
 		terms[i] = Term{Name: c, Columns: []string{c}}
@@ -56,13 +56,10 @@ func Stepwise(d *Data, base Model, candidates []string, alpha float64, test stri
 
 // StepwiseTerms is Stepwise over terms: each candidate is a group of
 // columns tested jointly (df: columns x (J-2)) and made parallel together.
-func StepwiseTerms(d *Data, base Model, candidates []Term, alpha float64, test string, opt Options) *StepwiseResult {
+func StepwiseTerms(d *Data, base Model, candidates []Term, alpha float64, test TestKind, opt Options) *StepwiseResult {
 	sr := &StepwiseResult{Alpha: alpha, Test: test}
-	if test == "" {
-		sr.Test = "wald"
-	}
-	if sr.Test != "wald" && sr.Test != "lr" {
-		sr.Reason = fmt.Sprintf("unknown stepwise test %q (want wald or lr)", test)
+	if test != TestWald && test != TestLR {
+		sr.Reason = fmt.Sprintf("stepwise selection tests by wald or lr, not %s", test)
 		return sr
 	}
 	K := len(d.Predictors)
@@ -121,12 +118,12 @@ func StepwiseTerms(d *Data, base Model, candidates []Term, alpha float64, test s
 			}
 			var t Test
 			var alt *Result
-			if sr.Test == "wald" {
+			if sr.Test == TestWald {
 				t = WaldEqualSlopes(cur, c.Columns)
 			} else {
 				alt, err = fitOne(withParallel(cur.Model, i))
 				if err != nil {
-					t = failedTest("lr", "%v", err)
+					t = failedTest(TestLR.String(), "%v", err)
 				} else {
 					t = LRTest(alt, cur)
 				}
@@ -167,13 +164,13 @@ func StepwiseTerms(d *Data, base Model, candidates []Term, alpha float64, test s
 	}
 	sr.FinalParallel = imposed
 	if len(imposed) > 0 {
-		if sr.Test == "wald" {
+		if sr.Test == TestWald {
 			sr.FinalTest = WaldEqualSlopes(sr.Start, imposedCols)
 		} else {
 			sr.FinalTest = LRTest(cur, sr.Start)
 		}
 	} else {
-		sr.FinalTest = failedTest(sr.Test, "no predictor was made parallel")
+		sr.FinalTest = failedTest(sr.Test.String(), "no predictor was made parallel")
 	}
 	sr.OK = true
 	return sr

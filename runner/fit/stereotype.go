@@ -21,7 +21,7 @@ import (
 // sum_{m<j} phi_m / S and Beta = S g.
 type StereotypeScores struct {
 	Normalization string
-	Levels        []string
+	Categories    []string
 	Alpha         []float64 // J values, Alpha[0] = 0
 	AlphaSE       []float64
 	Score         []float64 // J values, Score[0] = 0, Score[J-1] = 1
@@ -44,7 +44,7 @@ const StereotypeNormalization = "ln[P(y=j)/P(y=1)] = alpha_j + score_j x'beta; t
 // logit, every predictor constrained, one group), with delta-method
 // standard errors from r.Cov.
 func (r *Result) StereotypeScores() (*StereotypeScores, error) {
-	if r.Model.Comparison != Adjacent || r.Model.Link != Logit || r.Model.Level() != "stereotype" {
+	if r.Model.Comparison != Adjacent || r.Model.Link != Logit || r.Model.Structure() != StereotypeEffects {
 		return nil, fmt.Errorf("category scores exist for the stereotype model (adjacent logit, every predictor constrained in one group), not %s", r.Name)
 	}
 	if !r.OK() || r.Cov == nil {
@@ -74,7 +74,7 @@ func (r *Result) StereotypeScores() (*StereotypeScores, error) {
 	n := q + (J - 2) + K
 	A := make([]float64, n*P)
 	est := make([]float64, n)
-	out := &StereotypeScores{Normalization: StereotypeNormalization, Levels: r.Levels, Predictors: r.Predictors}
+	out := &StereotypeScores{Normalization: StereotypeNormalization, Categories: r.Categories, Predictors: r.Predictors}
 	row := 0
 	for j := 1; j < J; j++ {
 		out.Names = append(out.Names, fmt.Sprintf("alpha[%d]", j+1))

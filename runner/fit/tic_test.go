@@ -16,7 +16,7 @@ func TestTICPenaltyIsTraceOfSandwichTimesInformation(t *testing.T) {
 	for _, m := range metaModels[:2] {
 		r := fitOK(t, d, m)
 		P := len(r.Estimates)
-		V0, _, err := SandwichHC0(d, r, nil, false)
+		V0, _, err := SandwichEstimate(d, r, SandwichPlain, nil, false)
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -85,8 +85,8 @@ func (w *Worker) partition(ctx context.Context, p *PartitionTask) (*fit.Data, er
 		if err != nil {
 			return nil, fmt.Errorf("partition %w", err)
 		}
-		if len(ds.Levels) != p.J {
-			return nil, fmt.Errorf("partition %s has %d outcome categories, the whole data %d: give the categories in the data options", p.Name, len(ds.Levels), p.J)
+		if len(ds.Categories) != p.J {
+			return nil, fmt.Errorf("partition %s has %d outcome categories, the whole data %d: give the categories in the data options", p.Name, len(ds.Categories), p.J)
 		}
 		return runner.FitData(ds), nil
 	})

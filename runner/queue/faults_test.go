@@ -37,7 +37,7 @@ func TestDuplicateAndForeignRepliesIgnored(t *testing.T) {
 	ctx := testContext(t, 60*time.Second)
 	url := localserver.ForTest(t)
 	c := connect(t, ctx, url)
-	path, jobs := gssJobs(t, "parallel", "nonparallel")
+	path, jobs := gssJobs(t, fit.ParallelEffects, fit.NonparallelEffects)
 	clog := &LogBuffer{}
 	co := NewCoordinator(ctx, c, "plan-hash", clog)
 	if _, err := co.AddData(path); err != nil {
@@ -104,7 +104,7 @@ func TestDataHashMismatchRefused(t *testing.T) {
 	ctx := testContext(t, 60*time.Second)
 	url := localserver.ForTest(t)
 	c := connect(t, ctx, url)
-	path, jobs := gssJobs(t, "parallel")
+	path, jobs := gssJobs(t, fit.ParallelEffects)
 	if _, err := c.data.PutBytes(ctx, jobs[0].DataHash, []byte("warm,yr89\n1,0\n2,1\n")); err != nil {
 		t.Fatal(err)
 	}
@@ -133,7 +133,7 @@ func TestLongJobKeptByInProgressAcks(t *testing.T) {
 	ctx := testContext(t, 60*time.Second)
 	url := localserver.ForTest(t)
 	c := connect(t, ctx, url)
-	path, jobs := gssJobs(t, "parallel")
+	path, jobs := gssJobs(t, fit.ParallelEffects)
 	if err := c.PutData(ctx, path, jobs[0].DataHash); err != nil {
 		t.Fatal(err)
 	}
@@ -168,8 +168,8 @@ func TestPartitionWithOneCategoryRefused(t *testing.T) {
 	startWorker(t, url, "w1", 5*time.Second, 0)
 	dir := t.TempDir()
 	parts := []PartitionRef{writePart(t, dir, "a.csv", "y,x\n1,0\n2,1\n1,1\n"), writePart(t, dir, "b.csv", "y,x\n2,0\n2,1\n")}
-	whole := fit.Whole{J: 2, Predictors: []string{"x"}, Levels: []string{"1", "2"}, Counts: []float64{2, 3}, Rows: 5}
-	m, _ := runner.Spec{Approach: "cumulative", Link: "logit", Predictors: []string{"x"}}.Model()
+	whole := fit.Whole{J: 2, Predictors: []string{"x"}, Categories: []string{"1", "2"}, Counts: []float64{2, 3}, Rows: 5}
+	m, _ := runner.Spec{Approach: fit.Cumulative, Link: fit.Logit, Predictors: []string{"x"}}.Model()
 	_, err := FitPartitioned(ctx, c, parts, whole, m, PartitionOptions{Data: data.Options{Outcome: "y", Predictors: []string{"x"}}})
 	if err == nil || !strings.Contains(err.Error(), `partition b.csv: column "y": only one category`) {
 		t.Fatalf("got %v", err)

@@ -78,7 +78,7 @@ func startWorker(t *testing.T, url, name string, ackWait, delay time.Duration) *
 
 // gssJobs returns fits of the General Social Survey extract (Long 1997) as
 // plan jobs.
-func gssJobs(t *testing.T, levels ...string) (string, []runner.Job) {
+func gssJobs(t *testing.T, effects ...fit.Structure) (string, []runner.Job) {
 	t.Helper()
 	path := filepath.Join(refDir, "gsswarm.csv")
 	h, err := HashFile(path)
@@ -86,15 +86,15 @@ func gssJobs(t *testing.T, levels ...string) (string, []runner.Job) {
 		t.Fatal(err)
 	}
 	var jobs []runner.Job
-	for i, lv := range levels {
-		spec, err := runner.LevelSpec("cumulative", false, "logit", lv, gssPredictors, []string{"yr89", "male"}, nil)
+	for i, s := range effects {
+		spec, err := runner.EffectsSpec(fit.Cumulative, false, fit.Logit, s, gssPredictors, []string{"yr89", "male"}, nil)
 		if err != nil {
 			t.Fatal(err)
 		}
-		jobs = append(jobs, runner.Job{Outcome: "warm", Index: i, ID: "cumulative/" + lv + "/logit", Spec: spec,
+		jobs = append(jobs, runner.Job{Outcome: "warm", Index: i, ID: "cumulative/" + s.String() + "/logit", Spec: spec,
 			DataFile: "gsswarm.csv", DataHash: h,
 			DataOptions: data.Options{Outcome: "warm", Predictors: gssPredictors},
-			FitOptions:  fit.Options{Covariance: "oim", Workers: 1}})
+			FitOptions:  fit.Options{Covariance: fit.Observed, Workers: 1}})
 	}
 	return path, jobs
 }

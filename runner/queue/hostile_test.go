@@ -63,7 +63,7 @@ func TestRewrittenResultDiscarded(t *testing.T) {
 	ctx := testContext(t, 90*time.Second)
 	url := localserver.ForTest(t)
 	c := connect(t, ctx, url)
-	path, jobs := gssJobs(t, "parallel", "nonparallel")
+	path, jobs := gssJobs(t, fit.ParallelEffects, fit.NonparallelEffects)
 	startWorker(t, url, "w1", 5*time.Second, 0)
 	co := NewCoordinator(ctx, c, "plan-hash", nil)
 	if _, err := co.AddData(path); err != nil {
@@ -107,7 +107,7 @@ func TestGarbageAndEmptyRepliesDiscarded(t *testing.T) {
 	ctx := testContext(t, 90*time.Second)
 	url := localserver.ForTest(t)
 	c := connect(t, ctx, url)
-	path, jobs := gssJobs(t, "parallel", "nonparallel")
+	path, jobs := gssJobs(t, fit.ParallelEffects, fit.NonparallelEffects)
 	log := &LogBuffer{}
 	co := NewCoordinator(ctx, c, "plan-hash", log)
 	co.AddData(path)
@@ -154,7 +154,7 @@ func TestPersistentGarbageFailsRun(t *testing.T) {
 	ctx := testContext(t, 60*time.Second)
 	url := localserver.ForTest(t)
 	c := connect(t, ctx, url)
-	path, jobs2 := gssJobs(t, "parallel")
+	path, jobs2 := gssJobs(t, fit.ParallelEffects)
 	c2 := connect(t, ctx, url)
 	co2 := NewCoordinator(ctx, c2, "plan-hash", nil)
 	co2.AddData(path)
@@ -192,7 +192,7 @@ func TestJobDeadline(t *testing.T) {
 	url := localserver.ForTest(t)
 	c := connect(t, ctx, url)
 	c.JobDeadline = 300 * time.Millisecond
-	path, jobs := gssJobs(t, "parallel")
+	path, jobs := gssJobs(t, fit.ParallelEffects)
 	co := NewCoordinator(ctx, c, "plan-hash", nil)
 	co.AddData(path)
 	start := time.Now()
@@ -215,7 +215,7 @@ func TestWorkerLimitsAndUnsealedJobs(t *testing.T) {
 	ctx := testContext(t, 60*time.Second)
 	url := localserver.ForTest(t)
 	c := connect(t, ctx, url)
-	path, jobs := gssJobs(t, "parallel")
+	path, jobs := gssJobs(t, fit.ParallelEffects)
 	if err := c.PutData(ctx, path, jobs[0].DataHash); err != nil {
 		t.Fatal(err)
 	}
@@ -254,7 +254,7 @@ func TestPoisonedJobReported(t *testing.T) {
 	ctx := testContext(t, 60*time.Second)
 	url := localserver.ForTest(t)
 	c := connect(t, ctx, url)
-	path, jobs := gssJobs(t, "parallel")
+	path, jobs := gssJobs(t, fit.ParallelEffects)
 	c.PutData(ctx, path, jobs[0].DataHash)
 	task := &Task{Batch: "poison", Index: 0, ID: jobs[0].ID, Kind: KindFit, Fit: &jobs[0]}
 	b, _ := c.sealTask(task)
@@ -338,12 +338,12 @@ func TestOversizedReplyThroughObjectStore(t *testing.T) {
 		t.Fatal(err)
 	}
 	h, _ := HashFile(path)
-	spec, err := runner.LevelSpec("cumulative", false, "logit", "parallel", preds, nil, nil)
+	spec, err := runner.EffectsSpec(fit.Cumulative, false, fit.Logit, fit.ParallelEffects, preds, nil, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
 	job := runner.Job{Outcome: "y", ID: "cumulative/parallel/logit", Spec: spec, DataFile: "wide.csv", DataHash: h,
-		DataOptions: data.Options{Outcome: "y", Predictors: preds}, FitOptions: fit.Options{Covariance: "oim", Workers: 1}}
+		DataOptions: data.Options{Outcome: "y", Predictors: preds}, FitOptions: fit.Options{Covariance: fit.Observed, Workers: 1}}
 	startWorker(t, url, "w1", 5*time.Second, 0)
 	co := NewCoordinator(ctx, c, "wide", nil)
 	co.AddData(path)
@@ -363,7 +363,7 @@ func TestOversizedReplyThroughObjectStore(t *testing.T) {
 
 // Every shape check of a reply refuses what it must.
 func TestCheckReply(t *testing.T) {
-	_, jobs := gssJobs(t, "parallel")
+	_, jobs := gssJobs(t, fit.ParallelEffects)
 	path := filepath.Join(refDir, "gsswarm.csv")
 	good, err := runner.ExecuteJob(path, jobs[0])
 	if err != nil {

@@ -31,8 +31,8 @@ type PartitionRef struct {
 
 // PartitionOptions control a partitioned fit.
 type PartitionOptions struct {
-	// Data says how workers read every partition. Levels defaults to the
-	// whole data's levels: every partition must code the outcome alike,
+	// Data says how workers read every partition. Categories defaults to the
+	// whole data's categories: every partition must code the outcome alike,
 	// even one that lacks a category.
 	Data data.Options
 	Fit  fit.Options
@@ -53,10 +53,10 @@ func FitPartitioned(ctx context.Context, c *Client, parts []PartitionRef, whole 
 	if dopt.Outcome == "" {
 		return nil, errors.New("partitioned fit: the data options name no outcome column")
 	}
-	if len(dopt.Levels) == 0 {
-		dopt.Levels = whole.Levels
+	if len(dopt.Categories) == 0 {
+		dopt.Categories = whole.Categories
 	}
-	if len(dopt.Levels) != whole.J {
+	if len(dopt.Categories) != whole.J {
 		return nil, fmt.Errorf("partitioned fit: the data options need the %d category labels of the whole data, in order", whole.J)
 	}
 	hashes := make([]string, len(parts))

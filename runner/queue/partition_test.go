@@ -62,12 +62,12 @@ func TestPartitionedFitEqualsLocal(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	whole := fit.Whole{J: len(ds.Levels), Predictors: ds.Predictors, Levels: ds.Levels, Counts: ds.Counts, Rows: ds.N}
+	whole := fit.Whole{J: len(ds.Categories), Predictors: ds.Predictors, Categories: ds.Categories, Counts: ds.Counts, Rows: ds.N}
 	parts := splitCSV(t, path, 4)
 	specs := []runner.Spec{
-		{Approach: "cumulative", Link: "logit", Predictors: gssPredictors, Nonparallel: []string{"yr89", "male"}},
-		{Approach: "stage", Link: "probit", Predictors: gssPredictors},
-		{Approach: "adjacent", Link: "logit", Predictors: gssPredictors, Nonparallel: gssPredictors},
+		{Approach: fit.Cumulative, Link: fit.Logit, Predictors: gssPredictors, Nonparallel: []string{"yr89", "male"}},
+		{Approach: fit.Stage, Link: fit.Probit, Predictors: gssPredictors},
+		{Approach: fit.Adjacent, Link: fit.Logit, Predictors: gssPredictors, Nonparallel: gssPredictors},
 	}
 	for _, s := range specs {
 		m, err := s.Model()
@@ -98,11 +98,11 @@ func TestPartitionedFitEqualsLocal(t *testing.T) {
 
 // Partitions must code the outcome alike: without the whole data's
 // category labels the fit is refused with a clear error.
-func TestPartitionedFitNeedsLevels(t *testing.T) {
+func TestPartitionedFitNeedsCategories(t *testing.T) {
 	ctx := testContext(t, 30*time.Second)
 	c := connect(t, ctx, localserver.ForTest(t))
 	whole := fit.Whole{J: 4, Predictors: []string{"male"}, Counts: []float64{1, 1, 1, 1}, Rows: 4}
-	m, _ := runner.Spec{Approach: "cumulative", Link: "logit", Predictors: []string{"male"}}.Model()
+	m, _ := runner.Spec{Approach: fit.Cumulative, Link: fit.Logit, Predictors: []string{"male"}}.Model()
 	_, err := FitPartitioned(ctx, c, []PartitionRef{{Name: "p", Hash: strings.Repeat("0", 64)}}, whole, m, PartitionOptions{Data: data.Options{Outcome: "warm"}})
 	if err == nil || !strings.Contains(err.Error(), "category labels") {
 		t.Fatalf("got %v", err)

@@ -18,6 +18,7 @@ import (
 
 	"github.com/nats-io/nkeys"
 
+	"ordplan/runner/fit"
 	"ordplan/runner/queue/localserver"
 )
 
@@ -111,7 +112,7 @@ func TestSecureConnection(t *testing.T) {
 	defer cancel()
 	wlog := &LogBuffer{}
 	go (&Worker{Client: wc, Name: "secure-worker", CacheDir: t.TempDir(), AckWait: 5 * time.Second, Log: wlog}).Run(wctx)
-	path, jobs := gssJobs(t, "parallel")
+	path, jobs := gssJobs(t, fit.ParallelEffects)
 	co := NewCoordinator(ctx, c, "secure", nil)
 	co.AddData(path)
 	res, errs := co.Execute(jobs)

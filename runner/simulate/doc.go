@@ -10,7 +10,7 @@
 // it. Weights are 1, the offset 0, and cluster ids number consecutive
 // groups of ten rows (with no cluster effect).
 //
-// Each outcome follows a cumulative model: P(y <= m | x) = F(cut_m - eta_m)
+// Each outcome follows a cumulative model: P(y <= m | x) = F(tau_m - eta_m)
 // with eta_m the sum of the stated slopes times the predictors (a slope per
 // boundary for a nonparallel term, a slope per level against the reference
 // for a categorical column). The cutpoints are solved, by bisection, so

@@ -19,7 +19,7 @@ outcomes:
 predictors: [x]
 dictionary:
   x: {values: [0, 1]}
-models: {approaches: [cumulative], levels: [parallel]}
+models: {approaches: [cumulative], effects: [parallel]}
 tests: {parallel_lines: [wald]}
 rules:
   - reject_unconverged: true

@@ -10,6 +10,7 @@ import (
 
 	"ordplan/plan"
 	"ordplan/runner"
+	"ordplan/runner/fit"
 )
 
 const recoverPlan = `version: 1
@@ -22,7 +23,7 @@ predictors: [x, g]
 dictionary:
   x: {range: [-6, 6]}
   g: {values: [0, 1]}
-models: {approaches: [cumulative], levels: [parallel, nonparallel]}
+models: {approaches: [cumulative], effects: [parallel, nonparallel]}
 tests: {parallel_lines: [lr]}
 rules:
   - choose: {by: aic}
@@ -74,8 +75,8 @@ func TestLargeSampleRecoversAssumptions(t *testing.T) {
 	}
 	path := filepath.Join(t.TempDir(), "sim.csv")
 	os.WriteFile(path, buf.Bytes(), 0o644)
-	res, _, err := runner.FitOne(runner.SingleFit{DataFile: path, Outcome: "y", Levels: []string{"low", "mid", "high", "top"},
-		Predictors: []string{"x", "g"}, Approach: "cumulative", Link: "logit", Nonparallel: []string{"g"}, Covariance: "oim"})
+	res, _, err := runner.FitOne(runner.SingleFit{DataFile: path, Outcome: "y", Categories: []string{"low", "mid", "high", "top"},
+		Predictors: []string{"x", "g"}, Approach: fit.Cumulative, Link: fit.Logit, Nonparallel: []string{"g"}, Covariance: fit.Observed})
 	if err != nil || !res.OK() {
 		t.Fatalf("fit: %v", err)
 	}

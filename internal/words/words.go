@@ -1,0 +1,94 @@
+// Package words holds closed vocabularies: the words of an enumerated type
+// (links, comparisons, effect structures, tests, covariance kinds, rules),
+// each written once beside its type, with parsing, printing and the lists
+// that messages, help and the plan's schema show.
+package words
+
+import (
+	"fmt"
+	"strings"
+)
+
+// Set is the vocabulary of an enumerated type T whose values are 0..n-1,
+// in the order of names.
+type Set[T ~int] struct {
+	what  string // what one word names, e.g. "link"
+	names []string
+}
+
+// New returns the vocabulary of T: value i is written names[i].
+func New[T ~int](what string, names ...string) Set[T] {
+	return Set[T]{what: what, names: names}
+}
+
+// What is what one word names, e.g. "link".
+func (s Set[T]) What() string { return s.what }
+
+// Name gives the word of v.
+func (s Set[T]) Name(v T) string {
+	if int(v) >= 0 && int(v) < len(s.names) {
+		return s.names[v]
+	}
+	return fmt.Sprintf("%s(%d)", s.what, int(v))
+}
+
+// Names gives every word, in order.
+func (s Set[T]) Names() []string { return append([]string(nil), s.names...) }
+
+// All gives every value, in order.
+func (s Set[T]) All() []T {
+	out := make([]T, len(s.names))
+	for i := range out {
+		out[i] = T(i)
+	}
+	return out
+}
+
+// Parse turns a word into its value; the error lists the allowed words and
+// suggests one that differs only in letter case or separators.
+func (s Set[T]) Parse(w string) (T, error) {
+	for i, n := range s.names {
+		if w == n {
+			return T(i), nil
+		}
+	}
+	return 0, fmt.Errorf("%s", Unknown(s.what, w, s.names))
+}
+
+// Text gives the word of v as bytes, or an error for a value outside the set
+// (for MarshalText).
+func (s Set[T]) Text(v T) ([]byte, error) {
+	if int(v) < 0 || int(v) >= len(s.names) {
+		return nil, fmt.Errorf("no %s numbered %d", s.what, int(v))
+	}
+	return []byte(s.names[v]), nil
+}
+
+// Unknown explains why w is not one of names, suggesting a match that
+// differs only in letter case or separators.
+func Unknown(what, w string, names []string) string {
+	msg := fmt.Sprintf("unknown %s %q (want %s)", what, w, OrList(names))
+	norm := func(x string) string {
+		return strings.NewReplacer("-", "_", " ", "_").Replace(strings.ToLower(strings.TrimSpace(x)))
+	}
+	for _, n := range names {
+		if norm(w) == norm(n) {
+			return msg + `; did you mean "` + n + `"?`
+		}
+	}
+	return msg
+}
+
+// OrList renders ["a", "b", "c"] as "a, b or c".
+func OrList(words []string) string {
+	switch len(words) {
+	case 0:
+		return ""
+	case 1:
+		return words[0]
+	}
+	return strings.Join(words[:len(words)-1], ", ") + " or " + words[len(words)-1]
+}
+
+// OrList renders the words of the set as "a, b or c".
+func (s Set[T]) OrList() string { return OrList(s.names) }
