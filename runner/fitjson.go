@@ -45,7 +45,7 @@ type FitRecord struct {
 type CovarianceJSON struct {
 	Kind       fit.Covariance `json:"kind"`
 	Parameters []string       `json:"parameters"`
-	Matrix     [][]float64    `json:"matrix"`
+	Matrix     [][]*float64   `json:"matrix"` // null where not defined
 }
 
 // StartJSON is one start of a constrained fit's search.
@@ -107,9 +107,12 @@ func Record(r *fit.Result) FitRecord {
 		rec.StdErrors[n] = r.StdErrors[i]
 	}
 	P := len(r.ParamNames)
-	cov := &CovarianceJSON{Kind: r.CovType, Parameters: r.ParamNames, Matrix: make([][]float64, P)}
+	cov := &CovarianceJSON{Kind: r.CovType, Parameters: r.ParamNames, Matrix: make([][]*float64, P)}
 	for i := range cov.Matrix {
-		cov.Matrix[i] = r.Cov[i*P : (i+1)*P]
+		cov.Matrix[i] = make([]*float64, P)
+		for j := range cov.Matrix[i] {
+			cov.Matrix[i][j] = num(r.Cov[i*P+j])
+		}
 	}
 	rec.Covariance = cov
 	if len(r.Phi) > 0 {
