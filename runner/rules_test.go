@@ -210,7 +210,7 @@ outcomes: [{column: y}]
 categorical:
   g: {levels: [a, b, c]}
 predictors: [x, g]
-models: {approaches: [cumulative], levels: [parallel, partial], partial: {free: [g]}}
+models: {approaches: [cumulative], effects: [parallel, partial], partial: {free: [g]}}
 tests: {parallel_lines: []}
 rules:
   - reject_if_sparse: {smallest_category: 12, within: g}

@@ -502,7 +502,7 @@ categorical:
   treat: {levels: [placebo, drug]}
   site: {levels: [north, east, south, west]}
 predictors: [treat, site, age]
-models: {approaches: [cumulative], levels: [parallel]}
+models: {approaches: [cumulative], effects: [parallel]}
 tests: {parallel_lines: []}
 rules:
   - choose: {by: aic}
