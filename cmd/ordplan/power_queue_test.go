@@ -46,7 +46,7 @@ predictors: [a, b]
 dictionary:
   a: {values: [0, 1]}
   b: {range: [-4, 4]}
-models: {approaches: [cumulative, adjacent], levels: [parallel, nonparallel]}
+models: {approaches: [cumulative, adjacent], effects: [parallel, nonparallel]}
 tests: {parallel_lines: [lr]}
 rules:
   - reject_unconverged: true
