@@ -28,7 +28,9 @@ func writeRegistration(d *doc, r *runner.Result) {
 	switch st.State {
 	case lock.StateNone:
 		d.p("**Registered plan: none.** No lock file (`%s`) lies beside the plan, so nothing shows when this plan was fixed; `ordplan freeze` writes one before the data are seen.", st.LockFile)
-		writeUnusedDeviations(d, st)
+		if len(st.Unused) > 0 {
+			d.p("The plan lists %d deviation(s), but without a lock there is no registered plan to compare with.", len(st.Unused))
+		}
 		return
 	case lock.StateMatches:
 		d.p("**Registered plan: matches** (%s). The plan run here is the frozen plan, key for key.", frozen())

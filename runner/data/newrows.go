@@ -5,6 +5,7 @@ import (
 	"encoding/csv"
 	"errors"
 	"io"
+	"slices"
 	"strings"
 )
 
@@ -38,6 +39,12 @@ func LoadRows(path string, predictors []string, offset string, missingTokens []s
 // column in levels must be one of its levels and are stored as the level's
 // index; a level not listed is an error naming the line and column.
 func LoadRowsLevels(path string, predictors []string, levels map[string][]string, offset string, missingTokens []string) (*Rows, error) {
+	return LoadRowsMissing(path, predictors, levels, offset, missingTokens, nil)
+}
+
+// LoadRowsMissing is LoadRowsLevels with columns' own missing-value codes
+// (a data dictionary's), besides missingTokens.
+func LoadRowsMissing(path string, predictors []string, levels map[string][]string, offset string, missingTokens []string, columnMissing map[string][]string) (*Rows, error) {
 	raw, err := ReadFile(path)
 	if err != nil {
 		return nil, err
@@ -91,7 +98,7 @@ func LoadRowsLevels(path string, predictors []string, levels map[string][]string
 		skip := false
 		for j, c := range cols {
 			cell := strings.TrimSpace(rec[pos[j]])
-			if missing[cell] {
+			if missing[cell] || slices.Contains(columnMissing[c], cell) {
 				skip = true
 				break
 			}

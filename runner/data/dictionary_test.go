@@ -1,0 +1,66 @@
+package data
+
+import (
+	"errors"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+const dictCSV = "y,a,b\n1,0.5,-9\n2,1.5,2\n3,abc,1\n1,-9,7\n2,0.2,NA\n"
+
+func writeTemp(t *testing.T, name, s string) string {
+	t.Helper()
+	p := filepath.Join(t.TempDir(), name)
+	if err := os.WriteFile(p, []byte(s), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+// A column's own missing-value code is missing in that column only: the
+// row is dropped and counted under the column; in another column the same
+// text is a value.
+func TestColumnMissingCodes(t *testing.T) {
+	path := writeTemp(t, "d.csv", "y,a,b\n1,0.5,-9\n2,-9,2\n3,0.1,1\n1,0.3,2\n2,0.2,1\n3,0.9,2\n")
+	ds, err := Load(path, Options{Outcome: "y", Predictors: []string{"a", "b"}, ColumnMissing: map[string][]string{"b": {"-9"}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if ds.N != 5 || len(ds.Dropped) != 1 || ds.Dropped[0].Column != "b" || ds.Dropped[0].Rows != 1 {
+		t.Fatalf("rows %d, dropped %+v", ds.N, ds.Dropped)
+	}
+	if ds.X[0] != -9 { // first kept row (line 3): a = -9 is a value of a
+		t.Errorf("a on line 3 is %g, want -9", ds.X[0])
+	}
+	nr := writeTemp(t, "new.csv", "a,b\n0.1,-9\n0.2,1\n")
+	rows, err := LoadRowsMissing(nr, []string{"a", "b"}, nil, "", nil, map[string][]string{"b": {"-9"}})
+	if err != nil || len(rows.Skipped) != 1 || rows.Skipped[0] != 2 {
+		t.Fatalf("new rows: %v %+v", err, rows)
+	}
+}
+
+// Validate lists each cell against the dictionary with its line and
+// column: not a number, out of range, not among the values; missing cells
+// (common or the column's own codes) are not checked.
+func TestValidateAgainstDictionary(t *testing.T) {
+	path := writeTemp(t, "d.csv", dictCSV)
+	err := Validate(path, []Rule{
+		{Column: "a", Key: "dictionary.a", Numeric: true, Range: []float64{0, 1}, Missing: []string{"-9"}},
+		{Column: "b", Key: "dictionary.b", Numeric: true, Values: []string{"1", "2"}, Missing: []string{"-9"}},
+	}, nil)
+	var ve *ValidationError
+	if !errors.As(err, &ve) {
+		t.Fatalf("got %v", err)
+	}
+	want := []string{
+		`d.csv:3: column "a": value "1.5" is above the range [0, 1] of the data dictionary (dictionary.a.range)`,
+		`d.csv:4: column "a": value "abc" is not a number; the data dictionary (dictionary.a) describes a numeric column`,
+		`d.csv:5: column "b": value "7" is not one of the values 1, 2 of the data dictionary (dictionary.b.values)`,
+	}
+	got := strings.Split(strings.ReplaceAll(err.Error(), path, "d.csv"), "\n")
+	if strings.Join(got, "\n") != strings.Join(want, "\n") || ve.Total != 3 {
+		t.Errorf("got\n%s\nwant\n%s", strings.Join(got, "\n"), strings.Join(want, "\n"))
+	}
+}
