@@ -51,6 +51,9 @@ func writeRegistration(d *doc, r *runner.Result) {
 		rows = append(rows, []string{"`" + c.Path + "`", codeCell(c.From), codeCell(c.To), reason})
 	}
 	d.table([]string{"Key", "Registered", "This run", "Stated reason"}, rows)
+	if f.Version != r.Version {
+		d.p("The lock was written by ordplan %s and this is ordplan %s: a key that the newer program adds to the canonical form shows as a change from (absent) although the plan file did not change.", f.Version, r.Version)
+	}
 	writeUnusedDeviations(d, st)
 }
 

@@ -75,7 +75,7 @@ func leadingArg(args []string) (string, []string) {
 // registration compares the plan with its lock for run and check. An
 // unexplained change is printed in full and stops the command.
 func registration(p *plan.Plan, allow bool, stderr io.Writer) (*lock.Status, int) {
-	st, err := lock.Check(p, allow)
+	st, err := lock.CheckVersion(p, allow, runner.Version)
 	if err != nil {
 		fmt.Fprintf(stderr, "ordplan: %v\n", err)
 		return nil, exitFail

@@ -95,7 +95,11 @@ func Compare(p *plan.Plan, f *File) (*Status, error) {
 
 // Check finds the lock beside the plan and compares. Changes without a
 // stated reason are an error unless allow is set; the error lists them.
-func Check(p *plan.Plan, allow bool) (*Status, error) {
+func Check(p *plan.Plan, allow bool) (*Status, error) { return CheckVersion(p, allow, "") }
+
+// CheckVersion is Check by a program of the given version, which the
+// error names when it is not the lock's.
+func CheckVersion(p *plan.Plan, allow bool, version string) (*Status, error) {
 	path := PathFor(p.Path)
 	if _, err := os.Stat(path); errors.Is(err, fs.ErrNotExist) {
 		return &Status{State: StateNone, LockFile: filepath.Base(path), Unused: p.Deviations}, nil
@@ -110,7 +114,7 @@ func Check(p *plan.Plan, allow bool) (*Status, error) {
 	}
 	if st.State == StateUnexplained {
 		if !allow {
-			return st, &UnexplainedError{Plan: p.Path, Lock: path, Status: st}
+			return st, &UnexplainedError{Plan: p.Path, Lock: path, Status: st, Version: version}
 		}
 		st.Allowed = true
 	}
@@ -122,6 +126,7 @@ func Check(p *plan.Plan, allow bool) (*Status, error) {
 type UnexplainedError struct {
 	Plan, Lock string
 	Status     *Status
+	Version    string // of the program comparing ("" = not known)
 }
 
 func (e *UnexplainedError) Error() string {
@@ -133,6 +138,9 @@ func (e *UnexplainedError) Error() string {
 		if c.Reason == "" {
 			fmt.Fprintf(&b, "\n  %s: %s -> %s", c.Path, c.From, c.To)
 		}
+	}
+	if e.Status.Lock.Version != e.Version && e.Version != "" {
+		fmt.Fprintf(&b, "\n(the lock was written by ordplan %s, this is %s: a key the newer program adds shows as a change from (absent))", e.Status.Lock.Version, e.Version)
 	}
 	b.WriteString("\nstate the reason for each in the plan's deviations list (- key: KEY, reason: WHY), or run with --allow-unregistered-changes (the report then says so in its first lines)")
 	return b.String()

@@ -95,13 +95,17 @@ func Write(in Input) ([]byte, error) {
 		}
 	}
 	var preds, skipped []string
+	var cats []int // text columns used as categorical predictors
 	for i, c := range in.Columns {
 		if i == outcome {
 			continue
 		}
-		switch kinds[i].Word {
-		case "numeric", "binary", "ordered?", "unknown":
+		switch {
+		case kinds[i].Word == "numeric" || kinds[i].Word == "binary" || kinds[i].Word == "ordered?" || kinds[i].Word == "unknown":
 			preds = append(preds, c.Name)
+		case kinds[i].Word == "categorical" && !c.Many && c.Distinct >= 2 && c.Distinct <= 12 && 2*c.Distinct <= c.Rows-c.Missing:
+			preds = append(preds, c.Name)
+			cats = append(cats, i)
 		default:
 			skipped = append(skipped, c.Name)
 		}
@@ -168,13 +172,23 @@ func Write(in Input) ([]byte, error) {
 		w("    label: %s", yamlString(c.Name))
 	}
 	w("")
+	if len(cats) > 0 {
+		w("# Text columns read as categorical predictors: levels in the order found")
+		w("# (EDIT: order them, pick the reference; ordered: true if they are ordered).")
+		w("categorical:")
+		for _, i := range cats {
+			c := in.Columns[i]
+			w("  %s {levels: [%s], reference: %s}", yamlString(c.Name)+":", yamlList(c.Values), yamlString(c.Values[0]))
+		}
+		w("")
+	}
 	if len(preds) == 0 {
 		w("predictors: [EDIT]       # no numeric column was found")
 	} else {
 		w("predictors: [%s]", yamlList(preds))
 	}
 	if len(skipped) > 0 {
-		w("# Not listed: %s (text or empty columns; numeric predictors only).", strings.Join(skipped, ", "))
+		w("# Not listed: %s (empty columns, or text with too many values for a categorical predictor).", strings.Join(skipped, ", "))
 	}
 	w("")
 	if len(preds) > 0 {
@@ -187,6 +201,8 @@ func Write(in Input) ([]byte, error) {
 			c, k := in.Columns[i], kinds[i]
 			key := fmt.Sprintf("  %-*s ", width+1, yamlString(c.Name)+":")
 			switch {
+			case k.Word == "categorical":
+				w("%s{label: null, unit: null}   # EDIT the label (levels: categorical.%s)", key, c.Name)
 			case k.Word == "binary" || k.Word == "ordered?":
 				w("%s{values: [%s], label: null, unit: null}   # EDIT the label", key, yamlList(c.Values))
 			case k.Word == "numeric":
