@@ -3,6 +3,7 @@ package main
 import (
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -68,5 +69,30 @@ func TestInitSkeleton(t *testing.T) {
 	}
 	if _, errs, code := runCLI("init", filepath.Join(dir, "x.yaml"), "--header", "y,a", "--outcome", "z"); code != 1 || !strings.Contains(errs, `--outcome: column "z" is not in the file`) {
 		t.Errorf("unknown outcome: %d %s", code, errs)
+	}
+}
+
+// A text column with few values (not an identifier) becomes a categorical
+// predictor with its observed levels; the skeleton is a valid plan.
+func TestInitCategorical(t *testing.T) {
+	dir := t.TempDir()
+	csv := "id,grade,dose,site\n"
+	for i, s := range []string{"north", "south", "east", "north", "south", "east", "north", "east"} {
+		csv += "p" + strconv.Itoa(i) + "," + strconv.Itoa(1+i%3) + "," + strconv.Itoa(i) + ".5," + s + "\n"
+	}
+	dataPath := filepath.Join(dir, "t.csv")
+	os.WriteFile(dataPath, []byte(csv), 0o644)
+	planPath := filepath.Join(dir, "t.yaml")
+	if _, errs, code := runCLI("init", planPath, "--data", dataPath, "--outcome", "grade"); code != 0 {
+		t.Fatal(errs)
+	}
+	text, _ := os.ReadFile(planPath)
+	for _, want := range []string{"  site: {levels: [north, south, east], reference: north}", "predictors: [dose, site]", "# Not listed: id"} {
+		if !strings.Contains(string(text), want) {
+			t.Errorf("want %q in\n%s", want, text)
+		}
+	}
+	if _, err := plan.Load(planPath); err != nil {
+		t.Fatalf("not a valid plan: %v\n%s", err, text)
 	}
 }
