@@ -101,6 +101,9 @@ func writeGoodnessOfFit(d *doc, or *runner.OutcomeResult) {
 	} else {
 		d.p("Lipsitz test not computed: %s.", lz.Test.Reason)
 	}
+	if hasCategorical(or) {
+		d.p("The Pulkstenis-Robinson tests, which would also group the rows by the levels of the categorical predictors, are not computed by this version of the program.")
+	}
 	d.p("Observed and expected counts (the sum of the predicted probabilities) of each category in each group:")
 	head := []string{"Group", "Score range", "N"}
 	for _, l := range t.Categories {
@@ -151,4 +154,18 @@ func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 	}
 	caption := "For each category, the expected share of each group (line) and the observed share (points). Points far from their line, in a pattern, show where the model misfits; groups are ordered by predicted score."
 	return newChart(id, 420, caption, l).with(fig)
+}
+
+// hasCategorical reports whether a predictor of the outcome is
+// categorical.
+func hasCategorical(or *runner.OutcomeResult) bool {
+	if or.Design == nil {
+		return false
+	}
+	for _, s := range or.Design.Sources {
+		if s.Cat != nil {
+			return true
+		}
+	}
+	return false
 }
