@@ -35,7 +35,7 @@ func writeOverallFit(d *doc, or *runner.OutcomeResult) {
 		row = append(row, numfmt.Fixed(o.McFadden, 4), numfmt.Fixed(o.CoxSnell, 4), numfmt.Fixed(o.Nagelkerke, 4), mz)
 		rows = append(rows, row)
 	}
-	d.captioned("Overall fit: each candidate against its thresholds-only model").table([]string{"Model", "LL₀ (thresholds only)", "LR chi-square", "df", "p", "McFadden R²", "Cox-Snell R²", "Nagelkerke R²", "McKelvey-Zavoina R²"}, rows)
+	d.captioned("Overall fit: each candidate against its thresholds-only model (LL₀ its log-likelihood), and pseudo-R²").table([]string{"Model", "LL₀", "LR chi-square", "df", "p", "McFadden", "Cox-Snell", "Nagelkerke", "McKelvey-Zavoina"}, rows)
 	for _, o := range or.Overall {
 		if !o.LR.OK && o.LR.Reason != "" {
 			d.p("The likelihood-ratio statistics are not tests here: %s.", o.LR.Reason)
