@@ -16,8 +16,12 @@ func (d *decoder) applyDefaults(p *Plan) {
 	}
 	if p.Report.FocusPredictor == "" && !d.given("report.focus_predictor") && len(p.Predictors) > 0 {
 		p.Report.FocusPredictor = p.Predictors[0]
-		if len(p.Terms) > 0 && p.Terms[0].Source != "" {
-			p.Report.FocusPredictor = p.Terms[0].Source
+		// the first numeric column a term reads, else the first column
+		for _, t := range p.Terms {
+			if t.Source != "" && p.categorical(t.Source) == nil && t.Source != p.Report.PanelsBy {
+				p.Report.FocusPredictor = t.Source
+				break
+			}
 		}
 	}
 	for i := range p.Rules {

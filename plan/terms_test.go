@@ -1,0 +1,93 @@
+package plan
+
+import (
+	"strings"
+	"testing"
+)
+
+const termsPlanSrc = `version: 1
+data: {file: d.csv}
+subset:
+  - {column: age, at_least: 18}
+  - {column: site, one_of: [north, east]}
+outcomes:
+  - column: y
+  - column: z
+    predictors: [treat, {column: dose, sqrt: true}]
+categorical:
+  treat: {levels: [placebo, drug]}
+  site: {levels: [north, east, south], reference: east, coding: sum, unobserved: drop}
+  grade: {levels: ["1", "2", "3"], ordered: true, coding: successive}
+predictors:
+  - treat
+  - site
+  - grade
+  - {column: age, centre: 40, scale: sd, spline: {quantiles: [0.1, 0.5, 0.9]}, name: age_s}
+  - {column: dose, log: {shift: 1}, centre: mean}
+  - {column: bmi, poly: {degree: 2, basis: raw}}
+  - {interact: [treat, age_s]}
+models: {approaches: [cumulative], levels: [parallel, partial], partial: {free: [treat, site]}}
+rules:
+  - choose: {by: aic}
+report: {panels_by: treat}
+inference:
+  marginal_effects: [values]
+  at: {site: south, age: 50}
+`
+
+// A plan with every kind of term, a subset and an outcome's own predictor
+// list reads into the design vocabulary, and its canonical form is itself
+// a plan with the same canonical form (what a lock records).
+func TestTermsDecodeAndCanonical(t *testing.T) {
+	p, err := Parse([]byte(termsPlanSrc), "p.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := strings.Join(p.Predictors, " "); got != "treat site grade age_s dose.log.c bmi.poly treat&age_s" {
+		t.Errorf("terms %q", got)
+	}
+	if got := strings.Join(p.SourceColumns(), " "); got != "treat site grade age dose bmi" {
+		t.Errorf("columns %q", got)
+	}
+	if c := p.CategoricalOf("site"); c == nil || c.Reference != "east" || c.Coding != "sum" || c.Unobserved != "drop" {
+		t.Errorf("site %+v", c)
+	}
+	if len(p.Subset) != 2 || p.Subset[0].Op != ">=" || p.Subset[1].Op != "in" {
+		t.Errorf("subset %+v", p.Subset)
+	}
+	if o := p.Outcomes[1]; strings.Join(o.Predictors, " ") != "treat dose.sqrt" {
+		t.Errorf("own predictors %v", o.Predictors)
+	}
+	if a := p.Inference.At; len(a) != 2 || a[0].Level != "south" || a[1].Value != 50 {
+		t.Errorf("at %+v", a)
+	}
+	q, err := Parse(p.Canonical(), "p.yaml")
+	if err != nil {
+		t.Fatalf("canonical form does not parse: %v\n%s", err, p.Canonical())
+	}
+	if string(q.Canonical()) != string(p.Canonical()) {
+		t.Errorf("canonical round trip differs:\n%s\n%s", p.Canonical(), q.Canonical())
+	}
+}
+
+// Bad terms are reported at their keys.
+func TestBadTerms(t *testing.T) {
+	for _, c := range []struct{ edit, want string }{
+		{"  - {column: bmi, poly: {degree: 2, basis: raw}}\n", "  - {column: bmi, poly: {degree: 12}}\n"},
+		{"coding: successive}", "coding: successive, reference: \"2\"}"},
+		{"ordered: true, ", ""},
+		{"reference: east", "reference: west"},
+		{"{column: age, at_least: 18}", "{column: age, at_least: 18, at_most: 60}"},
+	} {
+		src := strings.Replace(termsPlanSrc, c.edit, c.want, 1)
+		if src == termsPlanSrc {
+			t.Fatalf("edit %q not applied", c.edit)
+		}
+		_, err := Parse([]byte(src), "p.yaml")
+		if err == nil {
+			t.Errorf("%q accepted", c.want)
+			continue
+		}
+		t.Log(err)
+	}
+}
