@@ -75,7 +75,7 @@ func checkReply(t *Task, r *Reply) error {
 		if err != nil {
 			return err
 		}
-		if err := r.Result.CheckShape(m, t.Fit.DataOptions.Predictors); err != nil {
+		if err := r.Result.CheckShape(m, t.Fit.Spec.Predictors); err != nil {
 			return fmt.Errorf("the fit result is malformed: %v", err)
 		}
 	case KindSums:
