@@ -26,13 +26,13 @@ predictors:
   - {column: dose, log: {shift: 1}, centre: mean}
   - {column: bmi, poly: {degree: 2, basis: raw}}
   - {interact: [treat, age_s]}
-models: {approaches: [cumulative], levels: [parallel, partial], partial: {free: [treat, site]}}
+models: {approaches: [cumulative], effects: [parallel, partial], partial: {free: [treat, site]}}
 rules:
   - choose: {by: aic}
 report: {panels_by: treat}
 inference:
-  marginal_effects: [values]
-  at: {site: south, age: 50}
+  marginal_effects: [profile]
+  profile: {site: south, age: 50}
 `
 
 // A plan with every kind of term, a subset and an outcome's own predictor
@@ -58,7 +58,7 @@ func TestTermsDecodeAndCanonical(t *testing.T) {
 	if o := p.Outcomes[1]; strings.Join(o.Predictors, " ") != "treat dose.sqrt" {
 		t.Errorf("own predictors %v", o.Predictors)
 	}
-	if a := p.Inference.At; len(a) != 2 || a[0].Level != "south" || a[1].Value != 50 {
+	if a := p.Inference.Profile; len(a) != 2 || a[0].Level != "south" || a[1].Value != 50 {
 		t.Errorf("at %+v", a)
 	}
 	q, err := Parse(p.Canonical(), "p.yaml")

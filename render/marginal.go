@@ -94,5 +94,5 @@ func atCategorical(note string) string {
 	if note == "" {
 		return ""
 	}
-	return " Categorical predictors are at their reference level unless the plan sets one (inference.at);" + strings.TrimPrefix(note, " Effects are per column of the data, not per column of the model:")
+	return " Categorical predictors are at their reference level unless the plan sets one (inference.profile);" + strings.TrimPrefix(note, " Effects are per column of the data, not per column of the model:")
 }

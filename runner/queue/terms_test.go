@@ -38,14 +38,14 @@ func TestJobsWithCategoricalTerms(t *testing.T) {
 	dopt := data.Options{Outcome: "sat", Weights: "freq", Predictors: []string{"infl", "type", "cont"},
 		PredictorLevels: map[string][]string{"infl": {"low", "medium", "high"}, "type": {"tower", "apartment", "atrium", "terrace"}, "cont": {"low", "high"}}}
 	var jobs []runner.Job
-	for i, lv := range []string{"parallel", "partial"} {
-		s, err := runner.LevelSpec("cumulative", false, "logit", lv, cols, []string{"type.apartment", "type.atrium", "type.terrace"}, nil)
+	for i, st := range []fit.Structure{fit.ParallelEffects, fit.PartialEffects} {
+		s, err := runner.EffectsSpec(fit.Cumulative, false, fit.Logit, st, cols, []string{"type.apartment", "type.atrium", "type.terrace"}, nil)
 		if err != nil {
 			t.Fatal(err)
 		}
-		jobs = append(jobs, runner.Job{Outcome: "sat", Index: i, ID: "cumulative/" + lv + "/logit", Spec: s,
+		jobs = append(jobs, runner.Job{Outcome: "sat", Index: i, ID: "cumulative/" + st.String() + "/logit", Spec: s,
 			DataFile: "housing_factors.csv", DataHash: h, DataOptions: dopt, Design: &spec,
-			FitOptions: fit.Options{Covariance: "oim", Workers: 1}})
+			FitOptions: fit.Options{Covariance: fit.Observed, Workers: 1}})
 	}
 	co := NewCoordinator(ctx, c, "plan-hash", &LogBuffer{})
 	if _, err := co.AddData(path); err != nil {
