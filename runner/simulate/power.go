@@ -8,6 +8,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime"
+	"slices"
 	"sort"
 	"strconv"
 	"sync"
@@ -84,8 +85,14 @@ type SizeResult struct {
 
 // OutcomePower is one outcome's results at every size.
 type OutcomePower struct {
-	Outcome string       `json:"outcome"`
-	Sizes   []SizeResult `json:"sizes"`
+	Outcome string `json:"outcome"`
+	// Nonparallel lists the terms the assumptions make nonparallel, and
+	// Generating the candidate of the grid with that structure (cumulative
+	// with the generating link: parallel, partial with exactly those terms
+	// free, or nonparallel with every term), "" when no candidate has it.
+	Nonparallel []string     `json:"nonparallel_terms"`
+	Generating  string       `json:"generating_model"`
+	Sizes       []SizeResult `json:"sizes"`
 }
 
 // PowerResult is a whole power study.
@@ -137,7 +144,7 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 	res := &PowerResult{Simulated: true, PlanFile: filepath.Base(p.Path), PlanSHA256: p.Hash, Title: p.Title, Seed: p.Seed, Link: sim.Link.String(),
 		Replicates: opt.Replicates, Alpha: opt.Alpha, Sizes: opt.Sizes, Version: runner.Version}
 	for _, oc := range p.Outcomes {
-		res.Outcomes = append(res.Outcomes, OutcomePower{Outcome: oc.Column})
+		res.Outcomes = append(res.Outcomes, generating(p, oc, sim.Link))
 	}
 	for _, n := range opt.Sizes {
 		reps := make([]replicate, opt.Replicates)
@@ -290,4 +297,35 @@ func summarize(p *plan.Plan, n int, reps []replicate, oi int) SizeResult {
 	}
 	sr.Separation, sr.NotConverged, sr.Failed = rate(sep, R), rate(nc, R), rate(failed, R)
 	return sr
+}
+
+// generating names the candidate with the structure that generated the data.
+func generating(p *plan.Plan, oc plan.Outcome, link fit.Link) OutcomePower {
+	op := OutcomePower{Outcome: oc.Column, Nonparallel: []string{}}
+	for _, oa := range p.Assumptions.Outcomes {
+		if oa.Column != oc.Column {
+			continue
+		}
+		for _, t := range oa.EffectOrder {
+			if _, ok := oa.Nonparallel[t]; ok {
+				op.Nonparallel = append(op.Nonparallel, t)
+			}
+		}
+	}
+	has := func(effects fit.Structure) bool {
+		return p.Models.HasApproach(fit.Cumulative) && slices.Contains(p.Models.Links, link) && p.Models.HasEffects(effects)
+	}
+	sameSet := func(a, b []string) bool {
+		return len(a) == len(b) && !slices.ContainsFunc(a, func(x string) bool { return !slices.Contains(b, x) })
+	}
+	terms := p.PredictorsOf(oc)
+	switch {
+	case len(op.Nonparallel) == 0 && has(fit.ParallelEffects):
+		op.Generating = fit.ModelID("cumulative", fit.ParallelEffects.String(), link)
+	case len(op.Nonparallel) == len(terms) && has(fit.NonparallelEffects):
+		op.Generating = fit.ModelID("cumulative", fit.NonparallelEffects.String(), link)
+	case p.Models.Partial.Select == nil && sameSet(op.Nonparallel, p.Models.Partial.Free) && has(fit.PartialEffects):
+		op.Generating = fit.ModelID("cumulative", fit.PartialEffects.String(), link)
+	}
+	return op
 }
