@@ -51,9 +51,9 @@ type OutcomeAssumption struct {
 }
 
 var (
-	assumptionKeys     = []string{"n", "link", "predictors", "outcomes"}
-	predAssumptionKeys = []string{"mean", "sd", "proportions"}
-	outAssumptionKeys  = []string{"proportions", "effects", "nonparallel"}
+	assumptionKeys     = keysAt("assumptions")
+	predAssumptionKeys = keysAt("assumptions.predictors")
+	outAssumptionKeys  = keysAt("assumptions.outcomes")
 )
 
 // decodeAssumptions reads the assumptions section.

@@ -16,7 +16,7 @@ type Deviation struct {
 	Line   int
 }
 
-var deviationKeys = []string{"key", "reason"}
+var deviationKeys = keysAt("deviations")
 
 // Covers reports whether the deviation explains a change at path: the
 // path is its key or lies below it.

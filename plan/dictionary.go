@@ -27,7 +27,7 @@ type Entry struct {
 }
 
 var (
-	entryKeys = []string{"label", "unit", "range", "values", "missing"}
+	entryKeys = keysAt("dictionary")
 )
 
 // decodeDictionary reads `dictionary: {column: {label, unit, range,

@@ -55,7 +55,7 @@ type ProfileValue struct {
 }
 
 var (
-	inferenceKeys       = []string{"hypotheses", "multiplicity", "marginal_effects", "profile", "predict"}
+	inferenceKeys       = keysAt("inference")
 	marginalEffectWords = []string{"average", "means", "profile"}
 	multiplicityWords   = []string{MultiplicityNone, MultiplicityHolm, MultiplicityBH}
 )

@@ -15,11 +15,11 @@ import (
 
 // Keys of the rules with options.
 var (
-	rejectKeys   = []string{"test", "alpha", "against", "applies_to"}
-	chooseKeys   = []string{"by", "margin", "otherwise"}
-	closeKeys    = []string{"max_difference", "grid"}
-	sparseKeys   = []string{"per_parameter", "smallest_category", "within"}
-	unstableKeys = []string{"max_condition", "min_starts_agreeing"}
+	rejectKeys   = keysAt("rules." + RuleRejectIfTestRejects)
+	chooseKeys   = keysAt("rules." + RuleChoose)
+	closeKeys    = keysAt("rules." + RuleRejectIfSimplerIsClose)
+	sparseKeys   = keysAt("rules." + RuleRejectIfSparse)
+	unstableKeys = keysAt("rules." + RuleRejectIfUnstable)
 )
 
 // lessConstrained lists the effect structures in which a model with the

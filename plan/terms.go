@@ -19,14 +19,14 @@ type CategoricalColumn struct {
 }
 
 var (
-	categoricalKeys = []string{"levels", "reference", "coding", "ordered", "unobserved"}
+	categoricalKeys = keysAt("categorical")
 	codingWords     = []string{design.Treatment, design.Sum, design.Successive}
 	unobservedWords = []string{design.UnobservedRefuse, design.UnobservedDrop}
-	termKeys        = []string{"name", "column", "log", "sqrt", "centre", "scale", "poly", "spline", "interact"}
-	logKeys         = []string{"shift"}
-	polyKeys        = []string{"degree", "basis"}
+	termKeys        = keysAt("predictors")
+	logKeys         = keysAt("predictors.log")
+	polyKeys        = keysAt("predictors.poly")
 	polyBasisWords  = []string{"orthogonal", "raw"}
-	splineKeys      = []string{"knots", "quantiles"}
+	splineKeys      = keysAt("predictors.spline")
 )
 
 // decodeCategorical reads the categorical section: column: {levels, ...}.

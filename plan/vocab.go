@@ -47,15 +47,15 @@ var (
 
 // Keys allowed in each mapping.
 var (
-	topKeys     = []string{"version", "title", "seed", "data", "outcomes", "subset", "categorical", "predictors", "models", "tests", "rules", "covariance", "report", "inference", "dictionary", "assumptions", "deviations"}
-	dataKeys    = []string{"file", "missing", "missing_values", "weights", "weight_kind", "offset", "cluster"}
-	outcomeKeys = []string{"column", "categories", "label", "predictors"}
-	modelsKeys  = []string{"approaches", "direction", "effects", "links", "partial"}
-	partialKeys = []string{"free", "select", "groups"}
-	selectKeys  = []string{"method", "alpha", "test"}
-	groupKeys   = []string{"name", "predictors"}
-	testsKeys   = []string{"parallel_lines", "alpha"}
-	reportKeys  = []string{"title", "focus_predictor", "panels_by", "confidence_level", "timestamp"}
+	topKeys     = keysAt("")
+	dataKeys    = keysAt("data")
+	outcomeKeys = keysAt("outcomes")
+	modelsKeys  = keysAt("models")
+	partialKeys = keysAt("models.partial")
+	selectKeys  = keysAt("models.partial.select")
+	groupKeys   = keysAt("models.partial.groups")
+	testsKeys   = keysAt("tests")
+	reportKeys  = keysAt("report")
 )
 
 // orList renders ["a", "b", "c"] as "a, b or c".

@@ -2,7 +2,6 @@ package runner
 
 import (
 	"fmt"
-	"io"
 	"runtime"
 	"slices"
 	"sync"
@@ -15,9 +14,16 @@ import (
 
 // Options control a run; none of them changes the results.
 type Options struct {
-	Workers  int       // fits run at once (default: all cores)
-	Progress io.Writer // progress lines (nil: none)
-	Executor Executor  // runs the grid's fits elsewhere (nil: here)
+	Workers  int      // fits run at once (default: all cores)
+	Progress Progress // hears of every finished fit (nil: nobody)
+	Executor Executor // runs the grid's fits elsewhere (nil: here)
+}
+
+// Progress hears of the fits of a run as they finish.
+type Progress interface {
+	// Fitted is called once per finished fit of an outcome's grid, in
+	// the order they finish: done of total fits are finished.
+	Fitted(outcome, id string, done, total int)
 }
 
 // Run executes a validated plan: data, fits, tests, rules.
@@ -282,7 +288,12 @@ func runJobs(jobs []*FitEntry, d *fit.Data, fopt fit.Options, opt Options, outco
 	var wg sync.WaitGroup
 	sem := make(chan struct{}, opt.Workers)
 	var mu sync.Mutex
-	done := 0
+	done, total := 0, 0
+	for _, e := range jobs {
+		if e.Err == "" {
+			total++
+		}
+	}
 	for _, e := range jobs {
 		if e.Err != "" {
 			continue
@@ -305,14 +316,7 @@ func runJobs(jobs []*FitEntry, d *fit.Data, fopt fit.Options, opt Options, outco
 			if opt.Progress != nil {
 				mu.Lock()
 				done++
-				status := "error"
-				if e.Result != nil {
-					status = string(e.Result.Status)
-				}
-				fmt.Fprintf(opt.Progress, "\r[%d/%d] %s: %s %-40s", done, len(jobs), outcome, e.ID, status)
-				if done == len(jobs) {
-					fmt.Fprintln(opt.Progress)
-				}
+				opt.Progress.Fitted(outcome, e.ID, done, total)
 				mu.Unlock()
 			}
 		}()

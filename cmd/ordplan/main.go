@@ -24,22 +24,6 @@ const (
 	exitNoChoice = 3
 )
 
-const usage = `ordplan: analysis plans for ordered outcomes
-
-usage:
-  ordplan run PLAN.yaml [--out DIR] [--previous DIR] [--workers N] [--queue nats://HOST:PORT --queue-secret-file FILE] [--allow-unregistered-changes]
-  ordplan worker --queue nats://HOST:PORT --queue-secret-file FILE [--cache DIR] [--jobs N]
-  ordplan check PLAN.yaml [--no-data] [--allow-unregistered-changes]
-  ordplan init PLAN.yaml [--data FILE | --header "a,b,c"] [--outcome COLUMN]
-  ordplan rehearse PLAN.yaml [--n N] [--out DIR]
-  ordplan power PLAN.yaml --n 200,400,800 [--replicates 500] [--out DIR]
-  ordplan freeze PLAN.yaml [--registration ID] [--replace]
-  ordplan fit --data FILE --outcome COL --predictors a,b,c [options]
-  ordplan version
-
-Run 'ordplan COMMAND --help' for the options of a command.
-`
-
 func main() {
 	os.Exit(run(os.Args[1:], os.Stdout, os.Stderr))
 }
@@ -53,8 +37,11 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 		}
 	}()
 	if len(args) == 0 {
-		fmt.Fprint(stderr, usage)
+		fmt.Fprint(stderr, usageText())
 		return exitUsage
+	}
+	if len(args) > 1 && isHelp(args[1:]) {
+		stderr = stdout // help asked for is output, not an error
 	}
 	switch args[0] {
 	case "fit":
@@ -73,14 +60,18 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 		return cmdPower(args[1:], stdout, stderr)
 	case "worker":
 		return cmdWorker(args[1:], stdout, stderr)
-	case "version":
+	case "schema":
+		return cmdSchema(args[1:], stdout, stderr)
+	case "version", "--version", "-version":
 		fmt.Fprintln(stdout, "ordplan", runner.Version)
 		return exitOK
-	case "help", "-h", "--help":
-		fmt.Fprint(stdout, usage)
+	case "help":
+		return cmdHelp(args[1:], stdout, stderr)
+	case "-h", "-help", "--help":
+		fmt.Fprint(stdout, usageText())
 		return exitOK
 	}
-	fmt.Fprintf(stderr, "ordplan: unknown command %q\n%s", args[0], usage)
+	fmt.Fprintf(stderr, "ordplan: unknown command %q\n%s", args[0], usageText())
 	return exitUsage
 }
 
@@ -102,13 +93,28 @@ func fail(stderr io.Writer, err error) int {
 func newFlags(name string, stderr io.Writer) *flag.FlagSet {
 	fs := flag.NewFlagSet("ordplan "+name, flag.ContinueOnError)
 	fs.SetOutput(stderr)
+	// After a bad flag the flag package prints the error; this line says
+	// where the flags are explained. --help prints them all (parseFlags).
+	fs.Usage = func() {
+		if !helpAsked {
+			fmt.Fprintf(fs.Output(), "Run 'ordplan %s --help' for its flags, each with an example.\n", name)
+		}
+	}
 	return fs
 }
 
+// helpAsked is set while parseFlags handles --help, so that the flag
+// package's usage line is not printed before the full help.
+var helpAsked bool
+
 // parseFlags parses and reports whether to stop, with the exit code.
+// --help prints the command's help (every flag, each with an example).
 func parseFlags(fs *flag.FlagSet, args []string) (bool, int) {
+	helpAsked = isHelp(args)
+	defer func() { helpAsked = false }()
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, flag.ErrHelp) {
+			printCommandHelp(fs.Output(), fs, strings.TrimPrefix(fs.Name(), "ordplan "))
 			return true, exitOK
 		}
 		return true, exitUsage
@@ -146,12 +152,6 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 	fs.TextVar(&approach, "approach", fit.Cumulative, "how categories are compared: "+fit.ComparisonWords.OrList())
 	fs.TextVar(&link, "link", fit.Logit, "link: "+fit.LinkWords.OrList())
 	fs.TextVar(&covariance, "covariance", fit.Observed, "standard errors: observed (information), expected (information), sandwich (HC1), sandwich_plain (HC0) or clustered (CR1)")
-	fs.Usage = func() {
-		fmt.Fprintln(fs.Output(), "Usage of ordplan fit:")
-		fs.PrintDefaults()
-		fmt.Fprintln(fs.Output())
-		fmt.Fprintln(fs.Output(), runner.CompactHelp)
-	}
 	if stop, code := parseFlags(fs, args); stop {
 		return code
 	}

@@ -6,6 +6,7 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
+	"time"
 
 	"ordplan/plan"
 	"ordplan/render"
@@ -126,8 +127,8 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	}
 	defer lock.Unlock()
 	opt := runner.Options{Workers: *workers}
-	if !*quiet && isTerminal(os.Stderr) {
-		opt.Progress = os.Stderr
+	if !*quiet {
+		opt.Progress = newProgress(stderr, stderr == io.Writer(os.Stderr) && isTerminal(os.Stderr), time.Now)
 	}
 	var queueLog io.Writer
 	if !*quiet {

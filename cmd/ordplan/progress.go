@@ -1,0 +1,75 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"strings"
+	"sync"
+	"time"
+)
+
+// progress reports the fits of a run on standard error: on a terminal one
+// live line (fits done of the total, time elapsed, an estimate of the time
+// left) rewritten in place; otherwise a plain line every few seconds and
+// one at the end of each outcome's grid, so logs stay short.
+type progress struct {
+	w     io.Writer
+	live  bool
+	now   func() time.Time
+	every time.Duration // plain lines: at most one per this long
+
+	mu      sync.Mutex
+	outcome string
+	start   time.Time // of the current outcome's grid
+	last    time.Time // last plain line
+	width   int       // of the last live line
+}
+
+func newProgress(w io.Writer, live bool, now func() time.Time) *progress {
+	t := now()
+	return &progress{w: w, live: live, now: now, every: 5 * time.Second, start: t, last: t}
+}
+
+// Fitted implements runner.Progress.
+func (p *progress) Fitted(outcome, id string, done, total int) {
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	t := p.now()
+	if outcome != p.outcome {
+		if p.outcome != "" {
+			p.start = t
+		}
+		p.outcome = outcome
+	}
+	elapsed := t.Sub(p.start)
+	line := fmt.Sprintf("%s: %d of %d fits, %s elapsed", outcome, done, total, roundDur(elapsed))
+	if done < total && done > 0 {
+		left := time.Duration(float64(elapsed) * float64(total-done) / float64(done))
+		line += ", about " + roundDur(left) + " left"
+	}
+	if p.live {
+		pad := ""
+		if n := p.width - len(line); n > 0 {
+			pad = strings.Repeat(" ", n)
+		}
+		fmt.Fprintf(p.w, "\r%s%s", line, pad)
+		p.width = len(line)
+		if done == total {
+			fmt.Fprintln(p.w)
+			p.width = 0
+		}
+		return
+	}
+	if done == total || t.Sub(p.last) >= p.every {
+		fmt.Fprintln(p.w, line)
+		p.last = t
+	}
+}
+
+// roundDur writes a duration to the second (to the tenth below ten seconds).
+func roundDur(d time.Duration) string {
+	if d < 10*time.Second {
+		return d.Round(100 * time.Millisecond).String()
+	}
+	return d.Round(time.Second).String()
+}

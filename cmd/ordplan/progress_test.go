@@ -1,0 +1,64 @@
+package main
+
+import (
+	"bytes"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+)
+
+// fakeClock advances by step at every reading.
+func fakeClock(step time.Duration) func() time.Time {
+	t := time.Date(2026, 12, 2, 12, 0, 0, 0, time.UTC)
+	return func() time.Time { t = t.Add(step); return t }
+}
+
+// Not on a terminal: one plain line every few seconds and one at the end,
+// never a carriage return.
+func TestProgressPlainLines(t *testing.T) {
+	var b bytes.Buffer
+	p := newProgress(&b, false, fakeClock(time.Second))
+	for i := 1; i <= 12; i++ {
+		p.Fitted("safety", "m", i, 12)
+	}
+	out := b.String()
+	lines := strings.Split(strings.TrimSuffix(out, "\n"), "\n")
+	if strings.Contains(out, "\r") || len(lines) != 3 {
+		t.Fatalf("want 3 plain lines (at 5 s, 10 s and the end), got:\n%q", out)
+	}
+	if lines[0] != "safety: 5 of 12 fits, 5s elapsed, about 7s left" || lines[2] != "safety: 12 of 12 fits, 12s elapsed" {
+		t.Errorf("lines:\n%s", out)
+	}
+}
+
+// On a terminal: one line rewritten in place, with the estimate of the
+// time left, ended by a newline when the grid is done.
+func TestProgressLiveLine(t *testing.T) {
+	var b bytes.Buffer
+	p := newProgress(&b, true, fakeClock(2*time.Second))
+	for i := 1; i <= 4; i++ {
+		p.Fitted("safety", "m", i, 4)
+	}
+	out := b.String()
+	if strings.Count(out, "\r") != 4 || !strings.HasSuffix(out, "\n") || strings.Count(out, "\n") != 1 {
+		t.Fatalf("got %q", out)
+	}
+	if !strings.Contains(out, "\rsafety: 1 of 4 fits, 2s elapsed, about 6s left") || !strings.Contains(out, "\rsafety: 4 of 4 fits, 8s elapsed") {
+		t.Errorf("got %q", out)
+	}
+}
+
+// ordplan run reports progress on standard error unless --quiet.
+func TestRunProgressAndQuiet(t *testing.T) {
+	dir := t.TempDir()
+	planPath := filepath.Join("..", "..", "render", "testdata", "golden.yaml")
+	_, errs, code := runCLI("run", planPath, "--out", filepath.Join(dir, "a"))
+	if code != 0 || !strings.Contains(errs, " fits, ") || strings.Contains(errs, "\r") {
+		t.Fatalf("exit %d, stderr:\n%s", code, errs)
+	}
+	_, errs, code = runCLI("run", planPath, "--out", filepath.Join(dir, "b"), "--quiet")
+	if code != 0 || strings.Contains(errs, " fits, ") {
+		t.Fatalf("--quiet: exit %d, stderr:\n%s", code, errs)
+	}
+}

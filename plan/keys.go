@@ -1,0 +1,437 @@
+package plan
+
+import (
+	"encoding/json"
+	"fmt"
+	"strings"
+
+	"ordplan/runner/fit"
+)
+
+// Key describes one key of a plan: what it holds, its default and allowed
+// words, and a sentence. Spec, the tree of every key, is the one
+// description of the plan's keys: the decoder takes the keys each mapping
+// allows from it (keysAt), `ordplan help plan` prints it (KeyHelp) and
+// `ordplan schema` turns it into a JSON Schema (Schema). To add a key, add
+// it here and read it in the decoder; help and schema follow.
+type Key struct {
+	Name     string
+	Kind     Kind
+	Doc      string   // one sentence
+	Default  string   // as text, "" when none
+	Words    []string // allowed words (KindWord, KindWords)
+	Required bool
+	Keys     []*Key // KindMapping: its keys; KindMap: one key describing every value
+	Item     *Key   // KindList: its items
+	// Variants: KindRules: the rule kinds, each a key whose value is true
+	// or a mapping of its options (Keys).
+	Variants []*Key
+	Min, Max *float64 // numbers: bounds (exclusive for KindProbability)
+}
+
+// Kind is what a key holds.
+type Kind int
+
+// The kinds of values.
+const (
+	KindText        Kind = iota // a text
+	KindName                    // a column or other name
+	KindInteger                 // a whole number
+	KindNumber                  // a number
+	KindProbability             // a number strictly between 0 and 1
+	KindBoolean                 // true or false
+	KindWord                    // one of Words
+	KindWords                   // a list of Words
+	KindNames                   // a list of names
+	KindNumbers                 // a list of numbers
+	KindMapping                 // a mapping with the keys Keys
+	KindMap                     // a mapping of name: value (the value described by Keys[0])
+	KindList                    // a list of Item
+	KindRules                   // the list of rules
+	KindAny                     // a value checked by the decoder only (terms, conditions)
+)
+
+var kindText = map[Kind]string{
+	KindText: "text", KindName: "name", KindInteger: "whole number", KindNumber: "number",
+	KindProbability: "number in (0, 1)", KindBoolean: "true or false", KindWord: "word", KindWords: "list of words",
+	KindNames: "list of names", KindNumbers: "list of numbers", KindMapping: "mapping", KindMap: "mapping of name: value",
+	KindList: "list", KindRules: "list of rules", KindAny: "see the description",
+}
+
+func k(name string, kind Kind, doc string) *Key { return &Key{Name: name, Kind: kind, Doc: doc} }
+
+func (x *Key) req() *Key                  { x.Required = true; return x }
+func (x *Key) dflt(s string) *Key         { x.Default = s; return x }
+func (x *Key) words(ws []string) *Key     { x.Words = ws; return x }
+func (x *Key) keys(ks ...*Key) *Key       { x.Keys = ks; return x }
+func (x *Key) item(it *Key) *Key          { x.Item = it; return x }
+func (x *Key) variants(v ...*Key) *Key    { x.Variants = v; return x }
+func (x *Key) atLeast(v float64) *Key     { x.Min = &v; return x }
+func (x *Key) range_(lo, hi float64) *Key { x.Min, x.Max = &lo, &hi; return x }
+
+func mkey(name, doc string, ks ...*Key) *Key { return k(name, KindMapping, doc).keys(ks...) }
+
+// Spec is every key of a plan.
+var Spec = mkey("", "An analysis plan.",
+	k("version", KindInteger, "The plan format; must be 1.").req(),
+	k("title", KindText, "The title of the analysis, shown in the report."),
+	k("seed", KindInteger, "Seed of everything drawn at random (random starts of constrained fits).").dflt("1"),
+	mkey("data", "Where the observations are and how to read them.",
+		k("file", KindText, "The CSV data file, relative to the plan's folder.").req(),
+		k("missing", KindWord, "Rows with a missing value: drop them (counted in the report) or refuse to run.").words(missingWords).dflt("drop"),
+		k("missing_values", KindNames, "Cell texts that mean a missing value.").dflt(`"", NA, NaN, .`),
+		k("weights", KindName, "A column of case weights."),
+		k("weight_kind", KindWord, "What the weights are: frequency weights (repeated rows) or sampling weights (a pseudo-likelihood with sandwich errors).").words(weightKindWords).dflt("frequency"),
+		k("offset", KindName, "A column added to every linear predictor."),
+		k("cluster", KindName, "A column of cluster ids, for covariance: clustered."),
+	).req(),
+	k("outcomes", KindList, "The ordinal outcomes, each analysed on its own.").req().item(mkey("", "One outcome.",
+		k("column", KindName, "The outcome column.").req(),
+		k("categories", KindNames, "The outcome's categories in order, lowest first (default: the integer codes of the data, sorted)."),
+		k("label", KindText, "The outcome's name in the report (default: the column)."),
+		k("predictors", KindAny, "The outcome's own predictor terms, written like the top-level predictors (default: those)."),
+	)),
+	k("subset", KindList, "Conditions a row must meet to be used; the others are dropped and counted.").item(mkey("", "One condition: a column and one comparison.",
+		append([]*Key{k("column", KindName, "The column compared.").req()}, subsetKeys()...)...)),
+	k("categorical", KindMap, "Columns read as categories of a predictor, each with its levels.").keys(mkey("", "One categorical column.",
+		k("levels", KindNames, "The column's levels, in order.").req(),
+		k("reference", KindName, "The reference level (default: the first)."),
+		k("coding", KindWord, "How the levels become columns.").words(codingWords).dflt(codingWords[0]),
+		k("ordered", KindBoolean, "The levels are ordered.").dflt("false"),
+		k("unobserved", KindWord, "A declared level no row has: refuse, or drop its column.").words(unobservedWords).dflt(unobservedWords[0]),
+	)),
+	k("predictors", KindList, "The predictor terms: a column name, or a mapping that names a transformed column or an interaction.").req().item(
+		mkey("", "One term (a column name is also a term).",
+			k("name", KindName, "The term's name in tables and hypotheses."),
+			k("column", KindName, "The column the term reads."),
+			mkey("log", "The logarithm of the column, after adding shift.", k("shift", KindNumber, "Added before the logarithm.")),
+			k("sqrt", KindBoolean, "The square root of the column."),
+			k("centre", KindAny, "Subtract a value (a number, or mean)."),
+			k("scale", KindAny, "Divide by a value (a number, or sd)."),
+			mkey("poly", "A polynomial in the column.", k("degree", KindInteger, "The degree.").req(), k("basis", KindWord, "The polynomial basis.").words(polyBasisWords).dflt(polyBasisWords[0])),
+			mkey("spline", "A natural cubic spline in the column.", k("knots", KindNumbers, "The interior knots."), k("quantiles", KindNumbers, "Knots at these quantiles of the column.")),
+			k("interact", KindNames, "The product of earlier terms."),
+		)),
+	mkey("models", "The grid of candidate models: approaches x effect structures x links.",
+		k("approaches", KindWords, "How the categories are compared.").words(fit.ComparisonWords.Names()).dflt(joinWords(defaultApproaches)),
+		k("direction", KindWord, "The direction of stage models.").words(directionWords).dflt("forward"),
+		k("effects", KindWords, "The effect structures of the grid.").words(fit.StructureWords.Names()).dflt(joinWords(defaultEffects)),
+		k("links", KindWords, "The links.").words(fit.LinkWords.Names()).dflt(joinWords(defaultLinks)),
+		mkey("partial", "Which predictors leave the parallel structure in the partial and constrained effect structures.",
+			k("free", KindNames, "The predictors made nonparallel (partial) or constrained (constrained)."),
+			mkey("select", "Or choose them by stepwise selection.",
+				k("method", KindWord, "The selection method.").words(selectMethodWords).dflt("stepwise"),
+				k("alpha", KindProbability, "The level of the selection tests.").dflt("0.05"),
+				k("test", KindWord, "The selection test.").words(names(selectTests)).dflt(fit.TestWald.String()),
+			),
+			k("groups", KindList, "Constraint groups of the constrained effect structure, each with its own common factor.").item(mkey("", "One group.",
+				k("name", KindName, "The group's name (required with several groups)."),
+				k("predictors", KindNames, "The free predictors of the group.").req(),
+			)),
+		),
+	),
+	mkey("tests", "The tests of the parallel-lines assumption.",
+		k("parallel_lines", KindWords, "The tests run for every approach and link.").words(names(parallelTests)).dflt(joinWords(defaultParallelLines)),
+		k("alpha", KindProbability, "Their level.").dflt("0.05"),
+	),
+	k("rules", KindRules, "The decision rules, applied in order; the last is choose or prefer_simpler.").req().variants(
+		k(RuleRejectUnconverged, KindBoolean, "Reject fits that did not converge or have no finite maximum."),
+		k(RuleRejectNegativeProbabilities, KindBoolean, "Reject cumulative fits that predict a negative probability for a row."),
+		mkey(RuleRejectIfTestRejects, "Reject a model when a test against a less constrained model rejects it.",
+			k("test", KindWord, "The test.").words(names(ruleTests)).dflt(fit.TestLR.String()),
+			k("alpha", KindProbability, "Its level (default: tests.alpha)."),
+			k("against", KindWord, "Which less constrained models.").words(againstWords).dflt(AgainstLeast),
+			k("applies_to", KindWords, "The effect structures tested (default: all).").words(fit.StructureWords.Names()),
+		),
+		mkey(RuleRejectIfSimplerIsClose, "Reject a model when a simpler kept model predicts every category probability within max_difference.",
+			k("max_difference", KindProbability, "The largest difference allowed.").req(),
+			k("grid", KindMap, "Where predictions are compared: predictor: [values] (default: the rows used).").keys(k("", KindNumbers, "Values of the predictor.")),
+		),
+		mkey(RuleRejectIfSparse, "Reject a model with too few observations per parameter or too small categories.",
+			k("per_parameter", KindNumber, "Observations per parameter at least this.").atLeast(0),
+			k("smallest_category", KindNumber, "Every category count at least this.").atLeast(0),
+			k("within", KindName, "Count the categories within each value of this column."),
+		),
+		mkey(RuleRejectIfUnstable, "Reject a model whose information is ill-conditioned or whose constrained search is unstable.",
+			k("max_condition", KindNumber, "Largest condition number of the information.").atLeast(0),
+			k("min_starts_agreeing", KindInteger, "Starts of a constrained search reaching the best value.").range_(1, 1000),
+		),
+		chooseRule(RuleChoose, "Choose the model with the smallest criterion.", "0"),
+		chooseRule(RulePreferSimpler, "Among models within margin of the smallest criterion, choose the one with the fewest parameters.", "2"),
+	),
+	k("covariance", KindWord, "How standard errors are computed.").words(fit.CovarianceWords.Names()).dflt(fit.Observed.String()),
+	mkey("report", "The written report.",
+		k("title", KindText, "The report's title (default: the plan's)."),
+		k("focus_predictor", KindName, "The x axis of the predicted-probability chart (default: the first predictor)."),
+		k("panels_by", KindName, "A categorical column whose levels give one chart panel each."),
+		k("confidence_level", KindProbability, "The level of the intervals.").dflt("0.95"),
+		k("timestamp", KindBoolean, "Put the start time in the report (off: same inputs, same bytes).").dflt("false"),
+	),
+	mkey("inference", "What to report beyond the model choice.",
+		k("hypotheses", KindList, "Linear hypotheses on parameters, e.g. \"pilot[1] = pilot[2]\" or \"tau[1] = -tau[4]\", tested by Wald tests.").item(k("", KindText, "One hypothesis.")),
+		k("multiplicity", KindWord, "Adjust the hypotheses' p-values over every outcome.").words(multiplicityWords).dflt(MultiplicityNone),
+		k("marginal_effects", KindWords, "The kinds of marginal effects of the chosen model.").words(marginalEffectWords).dflt("average"),
+		k("profile", KindMap, "Predictor values for marginal_effects: [profile] (a number, or a level of a categorical column).").keys(k("", KindAny, "A value.")),
+		k("predict", KindText, "A CSV file of new rows whose predictions go to predictions-<outcome>.csv."),
+	),
+	k("dictionary", KindMap, "What each used column holds.").keys(mkey("", "One column.",
+		k("label", KindText, "What the column is."),
+		k("unit", KindText, "Its unit."),
+		k("range", KindNumbers, "The smallest and largest allowed value."),
+		k("values", KindNames, "The allowed values (codes)."),
+		k("missing", KindNames, "The column's own missing-value codes."),
+	)),
+	mkey("assumptions", "Expected data, for ordplan rehearse and power.",
+		k("n", KindInteger, "Rows to simulate.").range_(10, 10_000_000),
+		k("link", KindWord, "The generating link (default: the plan's first).").words(fit.LinkWords.Names()),
+		k("predictors", KindMap, "Each predictor column's distribution.").keys(mkey("", "One column.",
+			k("mean", KindNumber, "Mean of a numeric column."), k("sd", KindNumber, "Its standard deviation."),
+			k("proportions", KindNumbers, "Shares of the values or levels."))),
+		k("outcomes", KindMap, "Each outcome's category shares and effects.").req().keys(mkey("", "One outcome.",
+			k("proportions", KindNumbers, "Category shares at the predictors' means."),
+			k("effects", KindMap, "Parallel slope of each term.").keys(k("", KindAny, "A slope, or level: slope.")),
+			k("nonparallel", KindMap, "Slopes per boundary of nonparallel terms.").keys(k("", KindNumbers, "One slope per boundary.")))),
+	),
+	k("deviations", KindList, "Why the plan departs from its frozen form.").item(mkey("", "One deviation.",
+		k("key", KindText, "The plan key changed.").req(), k("reason", KindText, "Why.").req())),
+)
+
+func chooseRule(name, doc, margin string) *Key {
+	return mkey(name, doc,
+		k("by", KindWord, "The criterion.").words(criterionWords).dflt("bic"),
+		k("margin", KindNumber, "Criterion differences within this count as ties.").dflt(margin).atLeast(0),
+		k("otherwise", KindName, "When every model is rejected: stop, or a fallback model approach/effects/link.").dflt(OtherwiseStop),
+	)
+}
+
+func subsetKeys() []*Key {
+	var out []*Key
+	for _, o := range subsetOps {
+		kind := KindAny
+		doc := fmt.Sprintf("Keep rows where the column %s this value.", o.op)
+		if o.op == "in" || o.op == "not_in" {
+			kind, doc = KindNames, fmt.Sprintf("Keep rows whose value is %s these.", map[string]string{"in": "one of", "not_in": "none of"}[o.op])
+		}
+		out = append(out, k(o.key, kind, doc))
+	}
+	return out
+}
+
+// find returns the key at a dotted path ("models.partial"); list items
+// and map values are entered through their item key ("outcomes" gives the
+// outcome mapping).
+func (x *Key) find(path string) *Key {
+	cur := x
+	if path == "" {
+		return cur
+	}
+	for _, part := range strings.Split(path, ".") {
+		var next *Key
+		for _, c := range cur.Keys {
+			if c.Name == part {
+				next = c
+			}
+		}
+		for _, v := range cur.Variants {
+			if v.Name == part {
+				next = v
+			}
+		}
+		if next == nil {
+			panic("plan: no key " + path + " in Spec")
+		}
+		for next.Item != nil && next.Kind == KindList {
+			next = next.Item
+		}
+		if next.Kind == KindMap && len(next.Keys) == 1 && next.Keys[0].Kind == KindMapping {
+			next = next.Keys[0]
+		}
+		cur = next
+	}
+	return cur
+}
+
+// keysAt lists the keys the mapping at path allows, in Spec order.
+func keysAt(path string) []string {
+	var out []string
+	for _, c := range Spec.find(path).Keys {
+		out = append(out, c.Name)
+	}
+	return out
+}
+
+// KeyHelp lists every key of a plan with its type, default, allowed words
+// and sentence.
+func KeyHelp() string {
+	var b strings.Builder
+	b.WriteString("The keys of an analysis plan (YAML). `null` or `~` means \"not set\".\n" +
+		"Items of a list are written [i]; the values of a name: value mapping NAME.\n\n")
+	var walk func(x *Key, path string)
+	line := func(x *Key, path string) {
+		t := kindText[x.Kind]
+		if x.Kind == KindWord || x.Kind == KindWords {
+			t += ": " + strings.Join(x.Words, " | ")
+		}
+		if x.Min != nil && x.Max != nil {
+			t += fmt.Sprintf(", %g to %g", *x.Min, *x.Max)
+		} else if x.Min != nil {
+			t += fmt.Sprintf(", at least %g", *x.Min)
+		}
+		var extra []string
+		if x.Required {
+			extra = append(extra, "required")
+		}
+		if x.Default != "" {
+			extra = append(extra, "default "+x.Default)
+		}
+		if len(extra) > 0 {
+			t += "; " + strings.Join(extra, "; ")
+		}
+		fmt.Fprintf(&b, "%s\n    %s\n    %s\n", path, t, x.Doc)
+	}
+	walk = func(x *Key, path string) {
+		if path != "" {
+			line(x, path)
+		}
+		switch {
+		case x.Kind == KindList && x.Item != nil && x.Item.Kind == KindMapping:
+			for _, c := range x.Item.Keys {
+				walk(c, path+"[i]."+c.Name)
+			}
+		case x.Kind == KindMap && len(x.Keys) == 1 && x.Keys[0].Kind == KindMapping:
+			for _, c := range x.Keys[0].Keys {
+				walk(c, path+".NAME."+c.Name)
+			}
+		case x.Kind == KindMapping:
+			for _, c := range x.Keys {
+				p := c.Name
+				if path != "" {
+					p = path + "." + c.Name
+				}
+				walk(c, p)
+			}
+		case x.Kind == KindRules:
+			for _, v := range x.Variants {
+				walk(v, path+"[i]."+v.Name)
+			}
+		}
+	}
+	walk(Spec, "")
+	return b.String()
+}
+
+// Schema is the JSON Schema (draft 2020-12) of a plan, made from Spec: YAML
+// editors use it for completion and checking. It checks the shape (keys,
+// kinds, allowed words, ranges); `ordplan check` checks the rest (columns,
+// rule order, what refers to what).
+func Schema() []byte {
+	root := schemaOf(Spec)
+	root["$schema"] = "https://json-schema.org/draft/2020-12/schema"
+	root["$id"] = "https://ordplan.invalid/plan.schema.json"
+	root["title"] = "ordplan analysis plan"
+	b, err := json.MarshalIndent(root, "", "  ")
+	if err != nil {
+		panic("plan: schema encoding failed: " + err.Error())
+	}
+	return append(b, '\n')
+}
+
+// nullable lets a key be null ("not set") besides its type.
+func nullable(s map[string]any) map[string]any {
+	return map[string]any{"anyOf": []any{s, map[string]any{"type": "null"}}}
+}
+
+func schemaOf(x *Key) map[string]any {
+	s := map[string]any{}
+	if x.Doc != "" {
+		s["description"] = x.Doc
+	}
+	num := func(t string) {
+		s["type"] = t
+		if x.Kind == KindProbability {
+			s["exclusiveMinimum"], s["exclusiveMaximum"] = 0, 1
+		}
+		if x.Min != nil {
+			s["minimum"] = *x.Min
+		}
+		if x.Max != nil {
+			s["maximum"] = *x.Max
+		}
+	}
+	switch x.Kind {
+	case KindText, KindName:
+		s["type"] = "string"
+	case KindInteger:
+		num("integer")
+	case KindNumber, KindProbability:
+		num("number")
+	case KindBoolean:
+		s["type"] = "boolean"
+	case KindWord:
+		s["enum"] = x.Words
+	case KindWords:
+		s["type"] = "array"
+		s["items"] = map[string]any{"enum": x.Words}
+		s["uniqueItems"] = true
+	case KindNames:
+		s["type"] = "array"
+		s["items"] = map[string]any{"type": []string{"string", "number", "boolean"}}
+	case KindNumbers:
+		s["type"] = "array"
+		s["items"] = map[string]any{"type": "number"}
+	case KindMapping:
+		s["type"] = "object"
+		props := map[string]any{}
+		var req []string
+		for _, c := range x.Keys {
+			cs := schemaOf(c)
+			if !c.Required {
+				cs = nullable(cs)
+			}
+			props[c.Name] = cs
+			if c.Required {
+				req = append(req, c.Name)
+			}
+		}
+		s["properties"] = props
+		s["additionalProperties"] = false
+		if len(req) > 0 {
+			s["required"] = req
+		}
+	case KindMap:
+		s["type"] = "object"
+		if len(x.Keys) == 1 {
+			s["additionalProperties"] = schemaOf(x.Keys[0])
+		}
+	case KindList:
+		s["type"] = "array"
+		if x.Item != nil {
+			it := schemaOf(x.Item)
+			if x.Name == "predictors" {
+				// A term is a column name or a mapping.
+				it = map[string]any{"anyOf": []any{map[string]any{"type": "string"}, it}}
+			}
+			s["items"] = it
+		}
+	case KindRules:
+		s["type"] = "array"
+		var kinds []any
+		for _, v := range x.Variants {
+			var val map[string]any
+			if v.Kind == KindMapping {
+				opts := schemaOf(v)
+				delete(opts, "description")
+				val = map[string]any{"anyOf": []any{map[string]any{"const": true}, opts}}
+			} else {
+				val = map[string]any{"anyOf": []any{map[string]any{"const": true}, map[string]any{"type": "object", "maxProperties": 0}}}
+			}
+			val["description"] = v.Doc
+			kinds = append(kinds, map[string]any{
+				"type": "object", "properties": map[string]any{v.Name: val},
+				"required": []string{v.Name}, "additionalProperties": false,
+			})
+		}
+		s["items"] = map[string]any{"oneOf": kinds}
+	}
+	return s
+}

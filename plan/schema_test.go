@@ -1,0 +1,103 @@
+package plan
+
+import (
+	"bytes"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"github.com/santhosh-tekuri/jsonschema/v6"
+	"gopkg.in/yaml.v3"
+)
+
+// compiledSchema compiles Schema with a general-purpose JSON Schema
+// validator (draft 2020-12).
+func compiledSchema(t *testing.T) *jsonschema.Schema {
+	t.Helper()
+	doc, err := jsonschema.UnmarshalJSON(bytes.NewReader(Schema()))
+	if err != nil {
+		t.Fatalf("the schema is not JSON: %v", err)
+	}
+	c := jsonschema.NewCompiler()
+	if err := c.AddResource("plan.schema.json", doc); err != nil {
+		t.Fatal(err)
+	}
+	s, err := c.Compile("plan.schema.json")
+	if err != nil {
+		t.Fatalf("the schema does not compile: %v", err)
+	}
+	return s
+}
+
+// asJSON reads YAML as the JSON value an editor would check.
+func asJSON(t *testing.T, src []byte) any {
+	t.Helper()
+	var v any
+	if err := yaml.Unmarshal(src, &v); err != nil {
+		t.Fatal(err)
+	}
+	b, err := json.Marshal(v)
+	if err != nil {
+		t.Fatal(err)
+	}
+	out, err := jsonschema.UnmarshalJSON(bytes.NewReader(b))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return out
+}
+
+// The schema accepts the example plans and refuses a plan with an unknown
+// key, a word that is not allowed, or a missing required key.
+func TestSchemaAgainstPlans(t *testing.T) {
+	s := compiledSchema(t)
+	for _, name := range []string{"example.yaml", "kneepain.yaml"} {
+		src, err := os.ReadFile(filepath.Join("..", "plans", name))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := s.Validate(asJSON(t, src)); err != nil {
+			t.Errorf("%s: %v", name, err)
+		}
+	}
+	src, _ := os.ReadFile(filepath.Join("..", "plans", "example.yaml"))
+	for _, c := range []struct{ name, from, to, want string }{
+		{"unknown key", "seed: 20261202", "seed: 20261202\nsede: 3", "sede"},
+		{"unknown key inside a section", "  missing: drop", "  missing: drop\n  colour: red", "colour"},
+		{"word not allowed", "links: [logit]", "links: [tanh]", "/models/links/0"},
+		{"old word", "covariance: observed", "covariance: oim", "/covariance"},
+		{"required key missing", "version: 1", "", "version"},
+	} {
+		bad := strings.Replace(string(src), c.from, c.to, 1)
+		if bad == string(src) {
+			t.Fatalf("%s: %q is not in the example plan", c.name, c.from)
+		}
+		err := s.Validate(asJSON(t, []byte(bad)))
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: got %v, want an error naming %q", c.name, err, c.want)
+		}
+	}
+}
+
+// Every key the decoder allows is in Spec (the decoder takes its lists
+// from Spec), and the help lists every key of Spec.
+func TestKeyHelpListsEveryKey(t *testing.T) {
+	help := KeyHelp()
+	for _, path := range []string{"version", "data.weight_kind", "models.effects", "models.partial.select.test",
+		"rules[i].reject_if_test_rejects.against", "inference.profile", "outcomes[i].categories", "covariance"} {
+		if !strings.Contains(help, "\n"+path+"\n") && !strings.HasPrefix(help, path+"\n") {
+			t.Errorf("help plan does not list %s", path)
+		}
+	}
+	for _, w := range []string{"observed | expected | sandwich | sandwich_plain | clustered", "frequency | sampling",
+		"logit | probit | cloglog | loglog | cauchy", "default parallel, partial, constrained, nonparallel"} {
+		if !strings.Contains(help, w) {
+			t.Errorf("help plan lacks %q", w)
+		}
+	}
+	if got := strings.Join(keysAt("models"), ","); got != "approaches,direction,effects,links,partial" {
+		t.Errorf("models keys %s", got)
+	}
+}
