@@ -84,11 +84,8 @@ func openReason(err error) string {
 // columnHint suggests a column that differs only in letter case or
 // separators, or else lists the columns of the file.
 func columnHint(col string, header []string) string {
-	norm := func(s string) string {
-		return strings.NewReplacer("-", "_", " ", "_", ".", "_").Replace(strings.ToLower(s))
-	}
 	for _, h := range header {
-		if norm(h) == norm(col) {
+		if looseEqual(h, col, "-. ") {
 			return `; did you mean "` + clip(h) + `"?`
 		}
 	}

@@ -37,11 +37,19 @@ func (e *Error) Error() string {
 // Errors is every problem found in a plan, sorted by position.
 type Errors []*Error
 
-// Error renders one problem per line.
+// MaxShown is the number of problems Errors renders; the rest are counted.
+const MaxShown = 40
+
+// Error renders one problem per line, the first MaxShown of them, then a
+// line counting the others.
 func (es Errors) Error() string {
-	lines := make([]string, len(es))
-	for i, e := range es {
+	n := min(len(es), MaxShown)
+	lines := make([]string, n, n+1)
+	for i, e := range es[:n] {
 		lines[i] = e.Error()
+	}
+	if len(es) > n {
+		lines = append(lines, fmt.Sprintf("%s: ... and %d more problems", es[n].File, len(es)-n))
 	}
 	return strings.Join(lines, "\n")
 }

@@ -129,9 +129,16 @@ func describe(n *yaml.Node) string {
 }
 
 func clip(s string) string {
-	r := []rune(s)
-	if len(r) > 40 {
-		return string(r[:37]) + "..."
+	// Walks at most 41 runes: a long text costs no more than a short one.
+	n, cut := 0, 0
+	for i := range s {
+		if n == 37 {
+			cut = i
+		}
+		if n == 40 {
+			return s[:cut] + "..."
+		}
+		n++
 	}
 	return s
 }

@@ -17,11 +17,24 @@ import (
 	"ordplan/runner/fit"
 )
 
+// MaxPlanBytes is the largest plan file Load reads.
+const MaxPlanBytes = 4 << 20
+
 // Load reads the plan file at path, checks it and applies defaults. Unlike
 // Parse it also opens the data file and checks that every column the plan
 // names is in its header, so that a misspelt column is reported at its
 // line in the plan.
 func Load(path string) (*Plan, error) {
+	// A plan is a short text file: a named pipe, a device or a huge file
+	// is refused before it is read.
+	if fi, err := os.Stat(path); err == nil {
+		switch {
+		case !fi.Mode().IsRegular():
+			return nil, Errors{{File: path, Msg: "is not a regular file (a named pipe, a device or a folder): give the plan as a file"}}
+		case fi.Size() > MaxPlanBytes:
+			return nil, Errors{{File: path, Msg: fmt.Sprintf("has %d bytes; a plan is a short text file of at most %d bytes", fi.Size(), MaxPlanBytes)}}
+		}
+	}
 	src, err := os.ReadFile(path)
 	if err != nil {
 		return nil, fmt.Errorf("cannot read plan: %w", err)

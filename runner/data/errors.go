@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"strconv"
 	"strings"
-	"unicode/utf8"
 )
 
 // Error reports a problem with an input file. It renders on one line as
@@ -44,18 +43,29 @@ const maxShown = 40
 // quoteCell quotes a cell value for a message, shortening long values so
 // that a message stays readable and on one line.
 func quoteCell(s string) string {
-	if utf8.RuneCountInString(s) > maxShown {
-		r := []rune(s)
-		return strconv.Quote(string(r[:maxShown])) + "..."
+	n := 0
+	for i := range s {
+		if n == maxShown {
+			return strconv.Quote(s[:i]) + "..."
+		}
+		n++
 	}
 	return strconv.Quote(s)
 }
 
-// quoteList renders names as a comma-separated list of quoted strings.
+// maxListed is the number of names quoteList shows.
+const maxListed = 20
+
+// quoteList renders names as a comma-separated list of quoted strings, the
+// first maxListed of them and a count of the rest.
 func quoteList(names []string) string {
-	q := make([]string, len(names))
-	for i, n := range names {
-		q[i] = quoteCell(n)
+	n := min(len(names), maxListed)
+	q := make([]string, n, n+1)
+	for i, name := range names[:n] {
+		q[i] = quoteCell(name)
+	}
+	if len(names) > n {
+		q = append(q, fmt.Sprintf("... (%d in all)", len(names)))
 	}
 	return strings.Join(q, ", ")
 }
