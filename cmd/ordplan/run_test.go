@@ -2,6 +2,9 @@ package main
 
 import (
 	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
 	"os"
 	"path/filepath"
 	"strings"
@@ -32,6 +35,31 @@ func TestRunExamplePlan(t *testing.T) {
 		if err1 != nil || err2 != nil || !bytes.Equal(x, y) {
 			t.Errorf("%s differs between runs (%v %v)", f, err1, err2)
 		}
+	}
+	// run.json lists every file of the run, tables and figures included,
+	// with the SHA-256 of the bytes on disk.
+	var rec struct {
+		Outputs map[string]string `json:"outputs_sha256"`
+	}
+	rj, _ := os.ReadFile(filepath.Join(a, "run.json"))
+	if err := json.Unmarshal(rj, &rec); err != nil {
+		t.Fatal(err)
+	}
+	entries, _ := os.ReadDir(a)
+	kinds := map[string]bool{}
+	for _, e := range entries {
+		if e.Name() == "run.json" || e.IsDir() || strings.HasPrefix(e.Name(), ".") {
+			continue
+		}
+		b, _ := os.ReadFile(filepath.Join(a, e.Name()))
+		sum := sha256.Sum256(b)
+		if rec.Outputs[e.Name()] != hex.EncodeToString(sum[:]) {
+			t.Errorf("run.json: %s has hash %q, want that of its bytes", e.Name(), rec.Outputs[e.Name()])
+		}
+		kinds[strings.SplitN(e.Name(), "-", 2)[0]] = true
+	}
+	if !kinds["table"] || !kinds["figure"] {
+		t.Errorf("no table or figure files among the outputs: %v", kinds)
 	}
 	// Changed data: drop the last 300 rows into a copy of the plan's folder.
 	cdir := filepath.Join(dir, "changed")
