@@ -30,6 +30,9 @@ type ruleEnv struct {
 	// labels gives, for each row used, the value of a data column.
 	labels func(col string) ([]string, error)
 
+	// nums collects the numbers of the verdict being made.
+	nums map[string]float64
+
 	probCache map[string][]float64
 	ticCache  map[*FitEntry][3]float64
 }
@@ -78,8 +81,9 @@ func (env *ruleEnv) apply() {
 		}
 		var next []*FitEntry
 		for _, f := range alive {
+			env.nums = map[string]float64{}
 			keep, why := env.judge(r, f, alive)
-			ro.Verdicts = append(ro.Verdicts, Verdict{Model: f.ID, Kept: keep, Reason: why})
+			ro.Verdicts = append(ro.Verdicts, Verdict{Model: f.ID, Kept: keep, Reason: why, Numbers: env.taken()})
 			if keep {
 				next = append(next, f)
 			} else {
@@ -234,7 +238,7 @@ func (env *ruleEnv) judge(r plan.Rule, f *FitEntry, alive []*FitEntry) (bool, st
 	case plan.RuleRejectIfSimplerIsClose:
 		return env.judgeClose(r, f, alive)
 	case plan.RuleRejectIfUnstable:
-		return judgeUnstable(r, res)
+		return env.judgeUnstable(r, res)
 	}
 	return true, "rule does not apply"
 }
@@ -286,6 +290,10 @@ func (env *ruleEnv) judgeTest(r plan.Rule, f *FitEntry) (bool, string) {
 			continue
 		}
 		s := fmt.Sprintf("%s test against %s: chi2(%d) = %s, %s", r.Test.Title(), full.ID, tt.DF, numfmt.Stat(tt.Chi2), pText(tt.P, r.Alpha))
+		env.num("chi2 against "+full.ID, tt.Chi2)
+		env.num("df against "+full.ID, float64(tt.DF))
+		env.num("p against "+full.ID, tt.P)
+		env.num("alpha", r.Alpha)
 		if tt.P < r.Alpha {
 			s += fmt.Sprintf(" < alpha %g", r.Alpha)
 			rejected = true
@@ -392,6 +400,8 @@ func (env *ruleEnv) judgeClose(r plan.Rule, f *FitEntry, alive []*FitEntry) (boo
 		if len(cat) == J {
 			label = cat[at%J]
 		}
+		env.num("largest difference from "+s.ID, best)
+		env.num("max_difference", r.MaxDifference)
 		s := fmt.Sprintf("largest difference from %s in a predicted category probability %s: %s (category %s at %s)", s.ID, where.desc, numfmt.Num(best), label, where.point(at/J))
 		if best < r.MaxDifference {
 			s += fmt.Sprintf(" < %g, the simpler model suffices", r.MaxDifference)
@@ -505,6 +515,10 @@ func (env *ruleEnv) judgeSparse(r plan.Rule, f *FitEntry) (bool, string) {
 	if r.PerParameter > 0 {
 		np := f.Result.NParams
 		per := nobs / float64(np)
+		env.num("observations", nobs)
+		env.num("parameters", float64(np))
+		env.num("per_parameter", per)
+		env.num("per_parameter limit", r.PerParameter)
 		s := fmt.Sprintf("%s %s for %d parameters: %s per parameter", numfmt.Num(nobs), unit, np, numfmt.Num(per))
 		if per < r.PerParameter {
 			s += fmt.Sprintf(" < %g", r.PerParameter)
@@ -540,6 +554,8 @@ func (env *ruleEnv) smallestCategory(r plan.Rule, f *FitEntry) (string, bool) {
 			counts[y] += weight(i)
 		}
 		j := argmin(counts)
+		env.num("smallest category count", counts[j])
+		env.num("smallest_category limit", r.SmallestCategory)
 		s := fmt.Sprintf("smallest category count %s (category %s)", numfmt.Num(counts[j]), levels[j])
 		if counts[j] < r.SmallestCategory {
 			return s + fmt.Sprintf(" < %g", r.SmallestCategory), false
@@ -574,6 +590,8 @@ func (env *ruleEnv) smallestCategory(r plan.Rule, f *FitEntry) (string, bool) {
 			minV, minJ, minC = v, j, c[j]
 		}
 	}
+	env.num("smallest category count", minC)
+	env.num("smallest_category limit", r.SmallestCategory)
 	s := fmt.Sprintf("smallest category count within the %d values of %s: %s (category %s at %s = %s)", len(values), r.Within, numfmt.Num(minC), levels[minJ], r.Within, minV)
 	if minC < r.SmallestCategory {
 		return s + fmt.Sprintf(" < %g", r.SmallestCategory), false
@@ -675,10 +693,12 @@ func columnLabels(or *OutcomeResult, col string) ([]string, error) {
 }
 
 // judgeUnstable applies the fit-quality rule.
-func judgeUnstable(r plan.Rule, res *fit.Result) (bool, string) {
+func (env *ruleEnv) judgeUnstable(r plan.Rule, res *fit.Result) (bool, string) {
 	var parts []string
 	keep := true
 	if r.MaxCondition > 0 {
+		env.num("condition", res.Condition)
+		env.num("max_condition", r.MaxCondition)
 		s := fmt.Sprintf("information condition %s", numfmt.Num(res.Condition))
 		if !(res.Condition <= r.MaxCondition) {
 			s += fmt.Sprintf(" > %g", r.MaxCondition)
@@ -692,6 +712,9 @@ func judgeUnstable(r plan.Rule, res *fit.Result) (bool, string) {
 		if len(res.Starts) == 0 {
 			parts = append(parts, "one search (no constrained effects), so no starts to agree")
 		} else {
+			env.num("starts", float64(len(res.Starts)))
+			env.num("starts agreeing", float64(res.StartsAgreeing))
+			env.num("min_starts_agreeing", float64(r.MinStartsAgreeing))
 			s := fmt.Sprintf("best value reached from %d of %d starts", res.StartsAgreeing, len(res.Starts))
 			if res.StartsAgreeing < r.MinStartsAgreeing {
 				s += fmt.Sprintf(" < %d", r.MinStartsAgreeing)
@@ -752,7 +775,12 @@ func (env *ruleEnv) choose(r plan.Rule, alive []*FitEntry, ro *RuleOutcome) {
 	chosen := tied[0]
 	for _, f := range usable {
 		c := crit(f)
-		v := Verdict{Model: f.ID}
+		v := Verdict{Model: f.ID, Numbers: map[string]float64{r.By: c, "smallest " + r.By: best, "margin": r.Margin, "parameters": float64(f.Result.NParams)}}
+		if r.By == "tic" {
+			if _, pen, err := env.cachedTIC(f); err == nil {
+				v.Numbers["tic penalty"] = pen
+			}
+		}
 		switch {
 		case f == chosen:
 			v.Kept = true
@@ -861,4 +889,22 @@ func (env *ruleEnv) cachedTIC(f *FitEntry) (float64, float64, error) {
 		env.ticCache[f] = [3]float64{v, pen}
 	}
 	return v, pen, err
+}
+
+// num records a number a verdict used (finite numbers only: JSON has no
+// NaN); the verdict's text gives the same number.
+func (env *ruleEnv) num(name string, v float64) {
+	if env.nums != nil && !math.IsNaN(v) && !math.IsInf(v, 0) {
+		env.nums[name] = v
+	}
+}
+
+// taken returns the numbers collected for one verdict and starts afresh.
+func (env *ruleEnv) taken() map[string]float64 {
+	m := env.nums
+	env.nums = nil
+	if len(m) == 0 {
+		return nil
+	}
+	return m
 }

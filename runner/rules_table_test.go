@@ -166,6 +166,20 @@ func TestTableTestRule(t *testing.T) {
 			}
 			env.apply()
 			wantLines(t, verdictLines(or, 0), c.want)
+			// decisions.json carries the same numbers unrounded.
+			if c.name == "least constrained" {
+				got := or.Rules[0].Verdicts[0].Numbers
+				want := map[string]float64{"chi2 against cumulative/nonparallel/logit": 14.5, "df against cumulative/nonparallel/logit": 2,
+					"p against cumulative/nonparallel/logit": 0.000710174, "alpha": 0.05}
+				if len(got) != len(want) {
+					t.Errorf("numbers %v", got)
+				}
+				for k, w := range want {
+					if got[k] != w {
+						t.Errorf("numbers[%q] = %v, want %v", k, got[k], w)
+					}
+				}
+			}
 		})
 	}
 }

@@ -129,4 +129,7 @@ type Verdict struct {
 	Model  string `json:"model"`
 	Kept   bool   `json:"kept"`
 	Reason string `json:"reason"`
+	// Numbers are the numbers the verdict used, by name (the same as in
+	// Reason, unrounded), e.g. "p against cumulative/nonparallel/logit".
+	Numbers map[string]float64 `json:"numbers,omitempty"`
 }
