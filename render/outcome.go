@@ -104,6 +104,9 @@ func writeModelTable(d *doc, or *runner.OutcomeResult) {
 		rows = append(rows, modelRow(f))
 	}
 	d.captioned("The candidate models").table([]string{"Model", "Status", "Log-likelihood", "Parameters", "AIC", "BIC", "Rows with P<0", "Verdict"}, rows)
+	if s := auxiliaryNote(or); s != "" {
+		d.p("%s", s)
+	}
 	for _, n := range or.Notes {
 		d.p("%s.", n)
 	}
@@ -125,4 +128,33 @@ func modelRow(f *runner.FitEntry) []string {
 		return []string{id, string(res.Status), "no finite value", fmt.Sprint(res.NParams), "", "", "", f.Verdict}
 	}
 	return []string{id, string(res.Status), numfmt.Fixed(res.LogLik, 3), fmt.Sprint(res.NParams), numfmt.Fixed(res.AIC, 2), numfmt.Fixed(res.BIC, 2), fmt.Sprint(res.NegativeRows), f.Verdict}
+}
+
+// auxiliaryNote explains the fits the plan's tests need besides the
+// candidates: they are fitted, used by the tests, and never chosen.
+func auxiliaryNote(or *runner.OutcomeResult) string {
+	var grid, per []string
+	perTerms := map[string]bool{}
+	for _, f := range or.Fits {
+		if !f.Auxiliary {
+			continue
+		}
+		if f.OnlyParallel != "" {
+			per = append(per, f.ID)
+			perTerms[f.OnlyParallel] = true
+		} else {
+			grid = append(grid, f.ID)
+		}
+	}
+	if len(grid)+len(per) == 0 {
+		return ""
+	}
+	s := fmt.Sprintf("Besides these candidates the plan caused %d auxiliary fits, made only for its tests and never candidates for the choice:", len(grid)+len(per))
+	if len(grid) > 0 {
+		s += fmt.Sprintf(" %d parallel or nonparallel model%s that the plan's effect structures do not include (%s), which the overall parallel-lines tests compare;", len(grid), plural(len(grid)), strings.Join(grid, ", "))
+	}
+	if len(per) > 0 {
+		s += fmt.Sprintf(" %d models in which one predictor term is parallel and every other one nonparallel (named approach/only-TERM-parallel/link, one per term of each approach and link: %d terms), which the per-predictor likelihood-ratio tests (lr in tests.parallel_lines) compare with the nonparallel model;", len(per), len(perTerms))
+	}
+	return strings.TrimSuffix(s, ";") + ". Their estimates are in decisions.json (auxiliary: true)."
 }

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"strings"
 )
 
 // Changes compares this run's decisions with those of an earlier run
@@ -57,7 +58,7 @@ func Changes(prevDir string, cur *Decisions) ([]string, error) {
 			case !ok:
 				out = append(out, fmt.Sprintf("%s: %s is new: %s.", o.Outcome, id, v.Reason))
 			case pv.Kept != v.Kept:
-				out = append(out, fmt.Sprintf("%s: %s was %s, now %s.", o.Outcome, id, pv.Reason, v.Reason))
+				out = append(out, fmt.Sprintf("%s: %s: in the earlier run %s; in this run %s.", o.Outcome, id, verdictPhrase(pv), verdictPhrase(v)))
 			}
 		}
 		for _, id := range sortedKeys(p.Final) {
@@ -77,4 +78,14 @@ func deref(s *string) string {
 		return "(none)"
 	}
 	return *s
+}
+
+// verdictPhrase writes a final verdict as "rejected (why)" or "chosen
+// (why)", so that a change reads in the right order.
+func verdictPhrase(v Verdict) string {
+	word, why, ok := strings.Cut(v.Reason, ": ")
+	if !ok {
+		return v.Reason
+	}
+	return word + " (" + why + ")"
 }
