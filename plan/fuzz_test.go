@@ -18,6 +18,7 @@ func FuzzParse(f *testing.F) {
 	f.Add([]byte(base))
 	f.Add([]byte(base + "seed: 18446744073709551615\nreport: {title: \"t\\u00e9\", confidence_level: 0.5}\n"))
 	f.Add([]byte("version: 1\nrules: [{choose: true}]\npredictors: &p [a]\nmodels: {effects: [parallel]}\noutcomes: [{column: y, categories: [1, 2]}]\ndata: {file: x}\n"))
+	f.Add([]byte(termsPlanSrc))
 	f.Add([]byte("a: &a [*a]\n"))
 	f.Add([]byte("- [\n"))
 	f.Fuzz(func(t *testing.T, src []byte) {

@@ -123,7 +123,7 @@ func (d *decoder) checkInference(p *Plan) {
 		key := childPath("inference.profile", a.Predictor)
 		c := p.categorical(a.Predictor)
 		switch {
-		case !slices.Contains(p.SourceColumns(), a.Predictor):
+		case !slices.Contains(p.SourceColumns(), a.Predictor) && d.clean("predictors"):
 			d.errAt(key, "%s is not a column the predictors read (%s)", quote(a.Predictor), strings.Join(p.SourceColumns(), ", "))
 		case c != nil && !slices.Contains(c.Levels, a.Level):
 			d.errAt(key, "%s is categorical: give one of its levels (%s)", quote(a.Predictor), strings.Join(c.Levels, ", "))

@@ -15,6 +15,9 @@ type decoder struct {
 	file  string
 	errs  Errors
 	nodes map[string]*yaml.Node
+	// badTerms are the names of predictor terms reported as bad, so that
+	// later checks do not report them again as unknown
+	badTerms []string
 }
 
 func newDecoder(file string) *decoder {

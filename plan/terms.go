@@ -71,7 +71,7 @@ func (d *decoder) decodeCategorical(n *yaml.Node) []CategoricalColumn {
 		if c.Coding == design.Successive && !c.Ordered && d.clean(m.at("coding")) {
 			d.errAt(m.at("coding"), "successive-difference coding is for ordered levels; add ordered: true (the levels are then in the order listed)")
 		}
-		if c.Coding == design.Successive && m.get("reference") != nil && c.Reference != c.Levels[0] {
+		if c.Coding == design.Successive && m.get("reference") != nil && len(c.Levels) > 0 && c.Reference != c.Levels[0] {
 			d.errAt(m.at("reference"), "successive-difference coding compares each level with the one before; the reference is the first level (%s)", quote(c.Levels[0]))
 		}
 		if c.Reference == "" && len(c.Levels) > 0 {
@@ -92,6 +92,8 @@ func (d *decoder) decodeTerms(n *yaml.Node, path string) ([]string, []design.Ter
 	}
 	var names []string
 	var terms []design.TermSpec
+	var badTerms []string
+	defer func() { d.badTerms = append(d.badTerms, badTerms...) }()
 	seen := map[string]int{}
 	for i, it := range items {
 		p := itemPath(path, i)
@@ -99,6 +101,10 @@ func (d *decoder) decodeTerms(n *yaml.Node, path string) ([]string, []design.Ter
 		if deref(it).Kind == yaml.MappingNode {
 			var ok bool
 			if t, ok = d.decodeTerm(it, p); !ok {
+				// a bad term is reported once, not again by every term
+				// that names it
+				seen[t.Name] = deref(it).Line
+				badTerms = append(badTerms, t.Name)
 				continue
 			}
 		} else {
@@ -279,7 +285,7 @@ func (d *decoder) checkTerms(p *Plan, terms []design.TermSpec, listKey string) {
 		}
 		if len(t.Interact) > 0 {
 			for _, c := range t.Interact {
-				if !names[c] {
+				if !names[c] && !slices.Contains(d.badTerms, c) {
 					d.errAt(d.itemKey(t.Key+".interact", c), "%s is not a term listed before this interaction in %s (interactions name earlier terms, e.g. interact: [treat, age])", quote(c), listKey)
 				}
 			}

@@ -77,6 +77,9 @@ func TestBadTerms(t *testing.T) {
 		{"coding: successive}", "coding: successive, reference: \"2\"}"},
 		{"ordered: true, ", ""},
 		{"reference: east", "reference: west"},
+		{`grade: {levels: ["1", "2", "3"], ordered: true, coding: successive}`, `grade: {levels: 3, reference: "2", ordered: true, coding: successive}`},
+		{"{column: age, centre: 40,", "{column: age, centre: [40],"},
+		{"  - treat\n  - site\n", "  - treat\n  - {}\n  - site\n"},
 		{"{column: age, at_least: 18}", "{column: age, at_least: 18, at_most: 60}"},
 	} {
 		src := strings.Replace(termsPlanSrc, c.edit, c.want, 1)
