@@ -47,13 +47,20 @@ type canonPlan struct {
 }
 
 type canonData struct {
-	File          string   `json:"file"`
-	Missing       string   `json:"missing"`
-	MissingValues []string `json:"missing_values"`
-	Weights       *string  `json:"weights"`
-	WeightKind    *string  `json:"weight_kind,omitempty"`
-	Offset        *string  `json:"offset"`
-	Cluster       *string  `json:"cluster"`
+	File          string        `json:"file"`
+	Missing       string        `json:"missing"`
+	MissingValues []string      `json:"missing_values"`
+	Weights       *string       `json:"weights"`
+	WeightKind    *string       `json:"weight_kind,omitempty"`
+	Offset        *string       `json:"offset"`
+	Cluster       *string       `json:"cluster"`
+	Imputed       *canonImputed `json:"imputed,omitempty"`
+}
+
+type canonImputed struct {
+	File   string   `json:"file,omitempty"`
+	Column string   `json:"column,omitempty"`
+	Files  []string `json:"files,omitempty"`
 }
 
 type canonOutcome struct {
@@ -153,6 +160,9 @@ func (p *Plan) canonical() canonPlan {
 	}
 	if p.Data.Weights != "" {
 		c.Data.WeightKind = optional(p.Data.WeightKind)
+	}
+	if im := p.Data.Imputed; im != nil {
+		c.Data.Imputed = &canonImputed{File: im.File, Column: im.Column, Files: im.Files}
 	}
 	if p.Models.HasApproach(fit.Stage) {
 		c.Models.Direction = optional(p.Models.Direction)

@@ -31,6 +31,37 @@ func (d *decoder) decodeData(n *yaml.Node, data *Data) {
 	m.word("weight_kind", "weight kind", weightKindWords, &data.WeightKind)
 	m.name("offset", &data.Offset)
 	m.name("cluster", &data.Cluster)
+	if v := m.get("imputed"); v != nil {
+		data.Imputed = d.decodeImputed(v)
+	}
+}
+
+// decodeImputed reads data.imputed: file and column (one stacked file), or
+// files (one per imputed set, at least two).
+func (d *decoder) decodeImputed(n *yaml.Node) *Imputed {
+	m := d.mapping(n, "data.imputed", imputedKeys)
+	if m == nil || m.node == nil {
+		return nil
+	}
+	im := &Imputed{}
+	if v := m.get("file"); v != nil {
+		im.File, _ = d.name(v, "data.imputed.file")
+	}
+	m.name("column", &im.Column)
+	if v := m.get("files"); v != nil {
+		im.Files, _ = d.names(v, "data.imputed.files")
+	}
+	switch {
+	case im.Files != nil && (im.File != "" || im.Column != ""):
+		d.errorf(n, "data.imputed", "give either file and column (one stacked file) or files (one file per imputed set), not both")
+	case im.Files != nil && len(im.Files) < 2:
+		d.errorf(m.get("files"), "data.imputed.files", "lists %d file; pooling over imputed data needs at least two imputed sets", len(im.Files))
+	case im.Files == nil && (im.File == "") != (im.Column == ""):
+		d.errorf(n, "data.imputed", "a stacked file needs both file and column (the imputation-number column)")
+	case im.Files == nil && im.File == "":
+		d.errorf(n, "data.imputed", "want file and column (one stacked file) or files (one file per imputed set)")
+	}
+	return im
 }
 
 // resolveDataPath places the data file relative to the plan's directory.

@@ -6,6 +6,13 @@ import "ordplan/runner/fit"
 // section. Simple defaults are set while decoding.
 func (d *decoder) applyDefaults(p *Plan) {
 	p.Data.Path = resolveDataPath(p.Dir, p.Data.File)
+	if im := p.Data.Imputed; im != nil {
+		im.Path = resolveDataPath(p.Dir, im.File)
+		im.Paths = nil
+		for _, f := range im.Files {
+			im.Paths = append(im.Paths, resolveDataPath(p.Dir, f))
+		}
+	}
 	for i := range p.Outcomes {
 		if p.Outcomes[i].Label == "" {
 			p.Outcomes[i].Label = p.Outcomes[i].Column

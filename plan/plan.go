@@ -47,6 +47,19 @@ type Data struct {
 	WeightKind    string   // "frequency" (default) or "sampling"
 	Offset        string   // column, optional
 	Cluster       string   // column, optional
+	// Imputed names multiply imputed versions of the data (nil: none):
+	// File then holds the original data with its missing values.
+	Imputed *Imputed
+}
+
+// Imputed is a set of multiply imputed data sets: one stacked file with an
+// imputation-number column (rows numbered 0 are the original data and are
+// not analysed), or one file per imputed set.
+type Imputed struct {
+	File, Path string   // stacked file, as written and resolved
+	Column     string   // its imputation-number column
+	Files      []string // or one file per set, as written
+	Paths      []string // resolved
 }
 
 // Outcome is one ordinal response column.

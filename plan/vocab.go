@@ -51,6 +51,7 @@ var (
 var (
 	topKeys     = keysAt("")
 	dataKeys    = keysAt("data")
+	imputedKeys = keysAt("data.imputed")
 	outcomeKeys = keysAt("outcomes")
 	modelsKeys  = keysAt("models")
 	partialKeys = keysAt("models.partial")

@@ -154,9 +154,21 @@ func writeMissing(d *doc, or *runner.OutcomeResult) {
 		d.p("No used column (%s) has a missing value.", strings.Join(mt.Columns, ", "))
 		return
 	}
-	incomplete := mt.Rows - or.Data.N
-	d.p("Missing values in the columns the analysis uses. Of %d rows, %d (%s) miss at least one used column; they were dropped before any fit, and the %d complete rows (%s) are analysed.",
-		mt.Rows, incomplete, sharePct(incomplete, mt.Rows), or.Data.N, sharePct(or.Data.N, mt.Rows))
+	complete := or.Data.N
+	if or.Imputed != nil {
+		complete = mt.Rows
+		for _, p := range mt.Patterns {
+			complete -= p.Rows
+		}
+	}
+	incomplete := mt.Rows - complete
+	if or.Imputed != nil {
+		d.p("Missing values in the columns the analysis uses, in the original data `%s`. Of %d rows, %d (%s) miss at least one used column; the analysis uses the %d imputed data sets instead (see Multiple imputation).",
+			or.Data.File, mt.Rows, incomplete, sharePct(incomplete, mt.Rows), or.Imputed.M)
+	} else {
+		d.p("Missing values in the columns the analysis uses. Of %d rows, %d (%s) miss at least one used column; they were dropped before any fit, and the %d complete rows (%s) are analysed.",
+			mt.Rows, incomplete, sharePct(incomplete, mt.Rows), complete, sharePct(complete, mt.Rows))
+	}
 	var rows [][]string
 	for j, c := range mt.Columns {
 		rows = append(rows, []string{"`" + c + "`", fmt.Sprint(mt.ByColumn[j]), sharePct(mt.ByColumn[j], mt.Rows)})
@@ -177,7 +189,7 @@ func writeMissing(d *doc, or *runner.OutcomeResult) {
 		}
 		rows = append(rows, r)
 	}
-	rows = append(rows, append([]string{fmt.Sprint(or.Data.N), sharePct(or.Data.N, mt.Rows)}, make([]string, len(mt.Columns))...))
+	rows = append(rows, append([]string{fmt.Sprint(complete), sharePct(complete, mt.Rows)}, make([]string, len(mt.Columns))...))
 	d.captioned("Missing-value patterns of the used columns").table(head, rows)
 
 	if len(mt.ByCategory) > 0 {
@@ -204,5 +216,48 @@ func writeMissing(d *doc, or *runner.OutcomeResult) {
 		}
 		d.captioned("Missing values by outcome category").table(head, rows)
 	}
+	if or.Imputed != nil {
+		return
+	}
 	d.p("Dropping incomplete rows (complete-case analysis) gives unbiased effects when the chance that a row is incomplete does not depend on the outcome once the predictors are taken into account; it loses precision whenever rows are dropped. Shares that differ between outcome categories suggest that missingness is related to the outcome, and call for an analysis of multiply imputed data as a check.")
+}
+
+// writeImputation states how imputed data were analysed: the method, the
+// number of imputed sets, the fraction of missing information of the key
+// estimates, and what imputation assumes.
+func writeImputation(d *doc, or *runner.OutcomeResult) {
+	im := or.Imputed
+	if im == nil {
+		return
+	}
+	d.h(3, "Multiple imputation")
+	src := fmt.Sprintf("stacked in `%s` by the imputation number in column `%s`", im.Files[0], im.Column)
+	if im.Source == "files" {
+		src = "one file each: `" + strings.Join(im.Files, "`, `") + "`"
+	}
+	d.p("Every model was fitted on each of the %d imputed data sets (%s; %d rows each) and the fits were pooled by Rubin's rules (Rubin 1987): the estimate is the mean over the sets, its variance the mean within-set variance plus (1 + 1/%d) times the between-set variance. The estimates tables show the pooled estimates with their total standard errors and normal-based intervals; the table below adds the degrees of freedom of Barnard and Rubin (1999) for t-based inference, with the complete-data degrees of freedom taken as the observations less the parameters. Likelihood-ratio tests are pooled by the D3 statistic (Meng and Rubin 1992), Wald tests by D1 (Li, Raghunathan and Rubin 1991); both are F tests on k and v degrees of freedom, shown in the test tables as k F with their F p-values. Score, Brant and Wolfe-Gould tests are not pooled. Log-likelihoods, AIC and BIC are means over the imputed sets: they are not the likelihood of one model, and rules on AIC or BIC compare these means.",
+		im.M, src, im.Rows, im.M)
+	f := or.Chosen
+	if f == nil || f.Pooled == nil {
+		for _, c := range or.Fits {
+			if !c.Auxiliary && c.Pooled != nil {
+				f = c
+				break
+			}
+		}
+	}
+	if f != nil && f.Pooled != nil {
+		pl := f.Pooled
+		var rows [][]string
+		for j, n := range f.Result.ParamNames {
+			df := "inf"
+			if !math.IsInf(pl.DF[j], 1) {
+				df = numfmt.Fixed(pl.DF[j], 1)
+			}
+			rows = append(rows, []string{ParamLabel(f.Result, n), numfmt.Est(pl.Estimate[j]), numfmt.Est(math.Sqrt(pl.Within[j*pl.P+j])), numfmt.Est(math.Sqrt(pl.Between[j*pl.P+j])), numfmt.Est(pl.SE[j]), df, numfmt.Fixed(pl.RIV[j], 3), numfmt.Fixed(pl.FMI[j], 3)})
+		}
+		d.p("The pooled estimates of %s with the within-set and between-set standard deviations, the total standard error, the degrees of freedom, the relative increase in variance due to missing values and the fraction of missing information. A fraction of missing information well above the share of incomplete rows, or degrees of freedom below about 10, say that the number of imputed sets (%d) is too small for stable p-values.", f.ID, im.M)
+		d.captioned("Pooling of "+f.ID).table([]string{"Parameter", "Estimate", "Within SD", "Between SD", "SE", "df", "RIV", "FMI"}, rows)
+	}
+	d.p("Multiple imputation assumes that the values are missing at random given the variables used to impute them: whether a value is missing may depend on what was observed, not on the missing value itself. The imputation model must include the outcome and every term of these models (their transformations and interactions too); otherwise the pooled effects are biased towards zero. The imputed sets were made outside this run, and their imputation model is not checked here.")
 }

@@ -56,6 +56,7 @@ func writeData(d *doc, or *runner.OutcomeResult) {
 		d.captioned("Predictor terms").table([]string{"Term", "What it is", "Columns"}, rows)
 	}
 	writeDescriptives(d, or)
+	writeImputation(d, or)
 }
 
 func writeFreeSets(d *doc, or *runner.OutcomeResult) {
@@ -79,7 +80,7 @@ func writeFreeSets(d *doc, or *runner.OutcomeResult) {
 		for _, st := range s.Result.Steps {
 			var parts []string
 			for _, t := range st.Tests {
-				parts = append(parts, fmt.Sprintf("%s chi2(%d) = %s, %s", t.Name, t.DF, numfmt.Stat(t.Chi2), numfmt.PText(t.P)))
+				parts = append(parts, fmt.Sprintf("%s %s, %s", t.Name, runner.TestStatistic(t), numfmt.PText(t.P)))
 			}
 			imposed := st.Imposed
 			if imposed == "" {

@@ -40,6 +40,9 @@ func testRow(label string, t fit.Test) []string {
 	if !t.OK {
 		return []string{label, "", "", "not computed: " + t.Reason}
 	}
+	if t.Pooled != "" {
+		label += " (pooled, " + t.Pooled + ")"
+	}
 	return []string{label, numfmt.Stat(t.Chi2), fmt.Sprint(t.DF), numfmt.PValue(t.P)}
 }
 

@@ -289,9 +289,12 @@ func (env *ruleEnv) judgeTest(r plan.Rule, f *FitEntry) (bool, string) {
 			parts = append(parts, fmt.Sprintf("the %s test against %s cannot be computed (%s)", r.Test.Title(), full.ID, tt.Reason))
 			continue
 		}
-		s := fmt.Sprintf("%s test against %s: chi2(%d) = %s, %s", r.Test.Title(), full.ID, tt.DF, numfmt.Stat(tt.Chi2), pText(tt.P, r.Alpha))
+		s := fmt.Sprintf("%s test against %s: %s, %s", r.Test.Title(), full.ID, TestStatistic(tt), pText(tt.P, r.Alpha))
 		env.num("chi2 against "+full.ID, tt.Chi2)
 		env.num("df against "+full.ID, float64(tt.DF))
+		if tt.Pooled != "" {
+			env.num("df2 against "+full.ID, tt.DF2)
+		}
 		env.num("p against "+full.ID, tt.P)
 		env.num("alpha", r.Alpha)
 		if tt.P < r.Alpha {

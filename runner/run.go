@@ -83,6 +83,9 @@ func covarianceOf(p *plan.Plan) fit.Covariance {
 }
 
 func runOutcome(p *plan.Plan, oc plan.Outcome, opt Options, dataHash string) (*OutcomeResult, error) {
+	if p.Data.Imputed != nil {
+		return runImputedOutcome(p, oc, opt)
+	}
 	ds, dz, fd, dopt, err := loadDesign(p, oc)
 	if err != nil {
 		return nil, err

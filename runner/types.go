@@ -6,6 +6,7 @@ import (
 	"ordplan/runner/data"
 	"ordplan/runner/design"
 	"ordplan/runner/fit"
+	"ordplan/runner/impute"
 )
 
 // Result is everything a plan run produced, in plan order.
@@ -56,6 +57,11 @@ type OutcomeResult struct {
 	dataOptions data.Options  // how Data was read (rules read further columns the same way)
 	Marginal    []MarginalSet // marginal effects of the chosen model
 	NewRows     *NewRows      // predictions for the plan's new rows
+
+	// Imputed is set when the outcome was analysed on multiply imputed
+	// data: Data then describes the original file (its missing values),
+	// FitData is imputed set 1, and every fit is pooled over the sets.
+	Imputed *ImputedRun
 }
 
 // FreeSet is the set of terms allowed to vary in partial and
@@ -88,6 +94,9 @@ type FitEntry struct {
 	Err          string // the fit could not be attempted (bad input for this model)
 	Verdict      string // kept, rejected or chosen (candidates only)
 	Rejected     string // the rule that rejected it, with its numbers
+	// Pooled holds Rubin's rules for this fit on imputed data (nil
+	// otherwise): Result then has the pooled estimates and total covariance.
+	Pooled *impute.Pooled `json:"-"`
 }
 
 // OK reports whether the fit has usable estimates.

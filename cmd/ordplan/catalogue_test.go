@@ -311,6 +311,49 @@ func separationMissed(out, errs string, code int) string {
 	return ""
 }
 
+// imputedFiles writes stacked imputed versions of d.csv: sets 1 and 3
+// (a gap), set 1 only, set 2 one row short, set 2 with a missing value,
+// a fractional imputation number, and a file with other columns.
+func imputedFiles(t *testing.T, dir, id string) {
+	t.Helper()
+	b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+	stack := func(name string, sets []string, edit func(set string, i int, l string) string) {
+		var out strings.Builder
+		out.WriteString("imp," + lines[0] + "\n")
+		for _, k := range sets {
+			for i, l := range lines[1:] {
+				if e := edit(k, i, l); e != "" {
+					out.WriteString(k + "," + e + "\n")
+				}
+			}
+		}
+		os.WriteFile(filepath.Join(dir, name), []byte(out.String()), 0o644)
+	}
+	same := func(_ string, _ int, l string) string { return l }
+	stack("imp-gap.csv", []string{"1", "3"}, same)
+	stack("imp-one.csv", []string{"1"}, same)
+	stack("imp-frac.csv", []string{"1.5", "2"}, same)
+	stack("imp-rows.csv", []string{"1", "2"}, func(k string, i int, l string) string {
+		if k == "2" && i == 0 {
+			return ""
+		}
+		return l
+	})
+	stack("imp-miss.csv", []string{"1", "2"}, func(k string, i int, l string) string {
+		if k == "2" && i == 0 {
+			f := strings.Split(l, ",")
+			f[1] = ""
+			return strings.Join(f, ",")
+		}
+		return l
+	})
+	os.WriteFile(filepath.Join(dir, "imp-cols.csv"), []byte("y,a,b,extra\n1,0.5,1,2\n2,0.1,0,3\n"), 0o644)
+}
+
 // catalogue lists the items of docs/bad-inputs.md; dir holds the files.
 func catalogue(dir string) (items []badInput) {
 	d := func(name string) string { return filepath.Join(dir, name) }
@@ -319,7 +362,7 @@ func catalogue(dir string) (items []badInput) {
 		{id: "P1", name: "unknown key", args: []string{"check"}, plan: edit("predictors:", "predictorz: [a]\npredictors:"), code: 1,
 			want: []string{`P1.yaml:6:1: predictorz: unknown key "predictorz" (allowed: version, title, seed, data, outcomes, subset, categorical, predictors, models, tests, rules, covariance, report, inference`}},
 		{id: "P2", name: "unknown nested key", args: []string{"check"}, plan: edit("  file: d.csv\n", "  file: d.csv\n  colour: red\n"), code: 1,
-			want: []string{`P2.yaml:4:3: data.colour: unknown key "colour" (allowed: file, missing, missing_values, weights, weight_kind, offset, cluster)`}},
+			want: []string{`P2.yaml:4:3: data.colour: unknown key "colour" (allowed: file, missing, missing_values, weights, weight_kind, offset, cluster, imputed)`}},
 		{id: "P3", name: "wrong type: a number for a list", args: []string{"check"}, plan: edit("predictors: [a, b]", "predictors: 3"), code: 1,
 			want: []string{`P3.yaml:6:13: predictors: want a list, got number 3`}},
 		{id: "P4", name: "wrong type: text for a number", args: []string{"check"}, plan: edit("{by: aic}", "{by: aic, margin: wide}"), code: 1,
@@ -375,6 +418,29 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{"/dev/zero: is not a regular file (a named pipe, a device or a folder): give the plan as a file"}},
 		{id: "P22", name: "plan file over 4 MB", args: []string{"check", d("huge.yaml")}, code: 1,
 			want: []string{"huge.yaml: has 4194305 bytes; a plan is a short text file of at most 4194304 bytes"}},
+
+		// Multiply imputed data.
+		{id: "I1", name: "imputation numbers with a gap", args: []string{"run"}, setup: imputedFiles,
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp-gap.csv, column: imp}\n"), code: 1,
+			want: []string{`imp-gap.csv: column imp: imputation numbers must run 1, 2, ..., m without gaps; 2 has no rows but 3 has`}},
+		{id: "I2", name: "one imputed set only", args: []string{"run"}, setup: imputedFiles,
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp-one.csv, column: imp}\n"), code: 1,
+			want: []string{`imp-one.csv: column imp holds one imputed set only (imputation number 1); pooling needs at least two imputed sets`}},
+		{id: "I3", name: "one imputed file only", args: []string{"check"},
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {files: [d.csv]}\n"), code: 1,
+			want: []string{`data.imputed.files: lists 1 file; pooling over imputed data needs at least two imputed sets`}},
+		{id: "I4", name: "imputed sets with different rows", args: []string{"run"}, setup: imputedFiles,
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp-rows.csv, column: imp}\n"), code: 1,
+			want: []string{`imp-rows.csv: column imp: imputed set 2 has 119 rows but set 1 has 120; imputed sets must hold the same rows`}},
+		{id: "I5", name: "imputed files with different columns", args: []string{"run"}, setup: imputedFiles,
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {files: [d.csv, imp-cols.csv]}\n"), code: 1,
+			want: []string{`data.imputed.files: imp-cols.csv has the columns y, a, b, extra but d.csv has y, a, b, c, d, big, tiny; imputed sets must have the same columns`}},
+		{id: "I6", name: "an imputed set with missing values", args: []string{"run"}, setup: imputedFiles,
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp-miss.csv, column: imp}\n"), code: 1,
+			want: []string{`data.imputed: imputed set 2, imp-miss.csv (imp = 2), has rows with missing values or zero weight (a: 1); every imputed set must be complete in the columns the plan uses`}},
+		{id: "I7", name: "imputation number that is not a whole number", args: []string{"run"}, setup: imputedFiles,
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp-frac.csv, column: imp}\n"), code: 1,
+			want: []string{`imp-frac.csv:2: column imp: imputation number "1.5" is not a whole number 0 or more (0 marks the original data)`}},
 
 		// Data files.
 		{id: "D1", name: "empty file", args: fitArgs(d("empty.csv"), "--predictors", "a,b"), code: 1,
@@ -672,7 +738,7 @@ func TestBadInputCatalogueIsDocumented(t *testing.T) {
 		t.Fatal(err)
 	}
 	inDoc := map[string]bool{}
-	for _, m := range regexp.MustCompile(`(?m)^\| ([PDMWRVTAOQ][0-9]+) \|`).FindAllStringSubmatch(string(doc), -1) {
+	for _, m := range regexp.MustCompile(`(?m)^\| ([PDMWRVTAOQI][0-9]+) \|`).FindAllStringSubmatch(string(doc), -1) {
 		inDoc[m[1]] = true
 	}
 	tested := map[string]bool{}

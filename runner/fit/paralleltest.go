@@ -69,6 +69,10 @@ type Test struct {
 	// Log-likelihoods of the two models (likelihood-ratio type tests).
 	LLRestricted float64 `json:"ll_restricted,omitempty"`
 	LLFull       float64 `json:"ll_full,omitempty"`
+	// Pooled over multiply imputed data sets ("D1" or "D3"): the statistic
+	// is F(DF, DF2) = Chi2/DF and P comes from that F distribution.
+	Pooled string  `json:"pooled,omitempty"`
+	DF2    float64 `json:"df2,omitempty"`
 }
 
 func failedTest(name, format string, a ...any) Test {

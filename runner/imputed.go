@@ -1,0 +1,464 @@
+package runner
+
+import (
+	"encoding/csv"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"slices"
+	"strconv"
+	"strings"
+
+	"ordplan/plan"
+	"ordplan/render/numfmt"
+	"ordplan/runner/data"
+	"ordplan/runner/design"
+	"ordplan/runner/fit"
+	"ordplan/runner/impute"
+)
+
+// ImputedRun records how an outcome was analysed on multiply imputed data.
+type ImputedRun struct {
+	M      int      // number of imputed sets
+	Source string   // "stacked" or "files"
+	Files  []string // the file(s) as the plan names them
+	Column string   // imputation-number column (stacked)
+	Rows   int      // rows used in each set
+	// Sets are the imputed sets' fit inputs, in imputation order.
+	Sets []*fit.Data `json:"-"`
+}
+
+// imputedSets reads the imputed sets of an outcome, checks that they are
+// complete and have the same rows and columns, and builds their designs
+// with the constants (centring, knots) frozen on the first set.
+func imputedSets(p *plan.Plan, oc plan.Outcome) (*ImputedRun, []*data.Dataset, *design.Design, error) {
+	im := p.Data.Imputed
+	spec := p.DesignSpec(oc)
+	dopt := dataOptions(p, oc, spec)
+	dopt.Refuse = false
+	run := &ImputedRun{}
+	var sets []*data.Dataset
+	var names []string
+	if im.Files != nil {
+		run.Source, run.Files = "files", im.Files
+		var first []string
+		for k, path := range im.Paths {
+			h, err := data.Header(path)
+			if err != nil {
+				return nil, nil, nil, fmt.Errorf("%s: data.imputed.files[%d]: %v", p.Path, k, err)
+			}
+			if k == 0 {
+				first = h
+			} else if !slices.Equal(h, first) {
+				return nil, nil, nil, fmt.Errorf("%s: data.imputed.files: %s has the columns %s but %s has %s; imputed sets must have the same columns", p.Path, im.Files[k], strings.Join(h, ", "), im.Files[0], strings.Join(first, ", "))
+			}
+			ds, err := data.Load(path, dopt)
+			if err != nil {
+				return nil, nil, nil, fmt.Errorf("%s (plan %s, data.imputed.files[%d], outcome %q)", err, p.Path, k, oc.Column)
+			}
+			sets = append(sets, ds)
+			names = append(names, im.Files[k])
+		}
+	} else {
+		run.Source, run.Files, run.Column = "stacked", []string{im.File}, im.Column
+		m, err := imputationNumbers(p, im)
+		if err != nil {
+			return nil, nil, nil, err
+		}
+		for k := 1; k <= m; k++ {
+			o := dopt
+			o.Keep = append(slices.Clone(dopt.Keep), data.Condition{Column: im.Column, Op: "==", Number: float64(k), Key: "data.imputed.column"})
+			ds, err := data.Load(im.Path, o)
+			if err != nil {
+				return nil, nil, nil, fmt.Errorf("%s (plan %s, data.imputed, imputed set %d, outcome %q)", err, p.Path, k, oc.Column)
+			}
+			sets = append(sets, ds)
+			names = append(names, fmt.Sprintf("%s (%s = %d)", im.File, im.Column, k))
+		}
+	}
+	run.M = len(sets)
+	for k, ds := range sets {
+		var miss []string
+		for _, dc := range ds.Dropped {
+			if !dc.Subset {
+				miss = append(miss, fmt.Sprintf("%s: %d", dc.Column, dc.Rows))
+			}
+		}
+		if len(miss) > 0 {
+			return nil, nil, nil, fmt.Errorf("%s: data.imputed: imputed set %d, %s, has rows with missing values or zero weight (%s); every imputed set must be complete in the columns the plan uses", p.Path, k+1, names[k], strings.Join(miss, ", "))
+		}
+		if ds.N != sets[0].N {
+			return nil, nil, nil, fmt.Errorf("%s: data.imputed: imputed set %d, %s, has %d rows but set 1, %s, has %d; imputed sets must hold the same rows", p.Path, k+1, names[k], ds.N, names[0], sets[0].N)
+		}
+		if !slices.Equal(ds.Categories, sets[0].Categories) {
+			return nil, nil, nil, fmt.Errorf("%s: data.imputed: imputed set %d, %s, has the outcome categories %s but set 1 has %s; declare the outcome's categories in the plan", p.Path, k+1, names[k], strings.Join(ds.Categories, ", "), strings.Join(sets[0].Categories, ", "))
+		}
+	}
+	run.Rows = sets[0].N
+	dz, d0, err := buildDesign(spec, sets[0])
+	if err != nil {
+		return nil, nil, nil, fmt.Errorf("%s: %v (imputed set 1, outcome %q)", p.Path, err, oc.Column)
+	}
+	run.Sets = []*fit.Data{d0}
+	for k, ds := range sets[1:] {
+		X, i, err := dz.Matrix(ds.X, ds.N)
+		if err != nil {
+			return nil, nil, nil, fmt.Errorf("%s: imputed set %d, data line %d: %v", p.Path, k+2, ds.Lines[i], err)
+		}
+		run.Sets = append(run.Sets, &fit.Data{Y: ds.Y, J: len(ds.Categories), X: X, Predictors: dz.Columns, Categories: ds.Categories, Weights: ds.Weights, Offset: ds.Offset})
+	}
+	return run, sets, dz, nil
+}
+
+// imputationNumbers reads the imputation-number column of a stacked file
+// and returns the number of imputed sets: the numbers must be whole, 0
+// (the original data, not analysed) or 1..m without gaps, m >= 2, and
+// every set must have as many rows as set 1.
+func imputationNumbers(p *plan.Plan, im *plan.Imputed) (int, error) {
+	f, err := os.Open(im.Path)
+	if err != nil {
+		return 0, fmt.Errorf("%s: data.imputed.file: cannot open %s: %v", p.Path, im.File, err)
+	}
+	defer f.Close()
+	r := csv.NewReader(f)
+	r.FieldsPerRecord = -1
+	head, err := r.Read()
+	if err != nil {
+		return 0, fmt.Errorf("%s: data.imputed.file: %s: cannot read the header: %v", p.Path, im.File, err)
+	}
+	col := -1
+	for i, h := range head {
+		if strings.TrimSpace(strings.TrimPrefix(h, "\ufeff")) == im.Column {
+			col = i
+		}
+	}
+	if col < 0 {
+		return 0, fmt.Errorf("%s: data.imputed.column: column %q is not in %s", p.Path, im.Column, im.File)
+	}
+	rows := map[int]int{}
+	for {
+		rec, err := r.Read()
+		if err == io.EOF {
+			break
+		}
+		line, _ := r.FieldPos(0)
+		if err != nil {
+			return 0, fmt.Errorf("%s: data.imputed.file: %s: %v", p.Path, im.File, err)
+		}
+		if col >= len(rec) {
+			return 0, fmt.Errorf("%s:%d: column %s: the line has no cell for the imputation number", im.File, line, im.Column)
+		}
+		cell := strings.TrimSpace(rec[col])
+		k, err := strconv.Atoi(cell)
+		if err != nil || k < 0 {
+			return 0, fmt.Errorf("%s:%d: column %s: imputation number %q is not a whole number 0 or more (0 marks the original data)", im.File, line, im.Column, cell)
+		}
+		rows[k]++
+	}
+	var nums []int
+	for k := range rows {
+		if k > 0 {
+			nums = append(nums, k)
+		}
+	}
+	slices.Sort(nums)
+	m := len(nums)
+	switch {
+	case m == 0:
+		return 0, fmt.Errorf("%s: column %s holds no imputed set (no imputation number 1 or more)", im.File, im.Column)
+	case m == 1:
+		return 0, fmt.Errorf("%s: column %s holds one imputed set only (imputation number %d); pooling needs at least two imputed sets", im.File, im.Column, nums[0])
+	}
+	for i, k := range nums {
+		if k != i+1 {
+			return 0, fmt.Errorf("%s: column %s: imputation numbers must run 1, 2, ..., m without gaps; %d has no rows but %d has", im.File, im.Column, i+1, k)
+		}
+	}
+	for _, k := range nums[1:] {
+		if rows[k] != rows[1] {
+			return 0, fmt.Errorf("%s: column %s: imputed set %d has %d rows but set 1 has %d; imputed sets must hold the same rows", im.File, im.Column, k, rows[k], rows[1])
+		}
+	}
+	return m, nil
+}
+
+// poolJobs fits every job on every imputed set and replaces each job's
+// result by the pooled one (Rubin's rules; log-likelihood, AIC and BIC are
+// the means over the sets). It returns the per-set fits, by set then job.
+func poolJobs(p *plan.Plan, sets []*data.Dataset, jobs []*FitEntry, run *ImputedRun, fopt fit.Options, opt Options, outcome string) [][]*FitEntry {
+	perSet := make([][]*FitEntry, run.M)
+	for k, d := range run.Sets {
+		cp := make([]*FitEntry, len(jobs))
+		for i, e := range jobs {
+			c := *e
+			cp[i] = &c
+		}
+		runJobs(cp, d, fopt, opt, fmt.Sprintf("%s, imputed set %d/%d", outcome, k+1, run.M), sandwichFor(p, sets[k], d))
+		perSet[k] = cp
+	}
+	for i, e := range jobs {
+		if e.Err != "" {
+			continue
+		}
+		sets := make([]impute.Set, run.M)
+		var bad *FitEntry
+		badSet := 0
+		for k := range perSet {
+			f := perSet[k][i]
+			if !f.OK() {
+				bad, badSet = f, k+1
+				break
+			}
+			sets[k] = impute.Set{Est: f.Result.Estimates, Cov: f.Result.Cov}
+		}
+		if bad != nil {
+			if bad.Result != nil {
+				r := *bad.Result
+				r.Message = fmt.Sprintf("in imputed set %d: %s", badSet, r.Message)
+				e.Result = &r
+			} else {
+				e.Err = fmt.Sprintf("in imputed set %d: %s", badSet, bad.Err)
+			}
+			continue
+		}
+		first := perSet[0][i].Result
+		dfc := first.NObs - float64(first.NParams)
+		if !(dfc > 0) {
+			dfc = math.Inf(1)
+		}
+		pl, err := impute.Pool(sets, dfc)
+		if err != nil {
+			e.Err = err.Error()
+			continue
+		}
+		r := *first
+		r.Estimates, r.Cov, r.StdErrors = pl.Estimate, pl.Total, pl.SE
+		var ll, aic, bic float64
+		for k := range perSet {
+			rk := perSet[k][i].Result
+			ll += rk.LogLik / float64(run.M)
+			aic += rk.AIC / float64(run.M)
+			bic += rk.BIC / float64(run.M)
+		}
+		r.LogLik, r.AIC, r.BIC = ll, aic, bic
+		r.Cutpoints = meanRows([][]float64{first.Cutpoints}, perSet, i, func(x *fit.Result) [][]float64 { return [][]float64{x.Cutpoints} })[0]
+		r.Effects = meanRows(first.Effects, perSet, i, func(x *fit.Result) [][]float64 { return x.Effects })
+		r.Phi = meanRows(first.Phi, perSet, i, func(x *fit.Result) [][]float64 { return x.Phi })
+		e.Result = &r
+		e.Pooled = pl
+	}
+	return perSet
+}
+
+// meanRows averages a derived table (cutpoints, effects, phi) over the sets.
+func meanRows(shape [][]float64, perSet [][]*FitEntry, i int, get func(*fit.Result) [][]float64) [][]float64 {
+	out := make([][]float64, len(shape))
+	for a, row := range shape {
+		out[a] = make([]float64, len(row))
+	}
+	for k := range perSet {
+		v := get(perSet[k][i].Result)
+		for a := range out {
+			for b := range out[a] {
+				out[a][b] += v[a][b] / float64(len(perSet))
+			}
+		}
+	}
+	return out
+}
+
+// pooledTestBlock is testBlock on imputed data: likelihood-ratio tests
+// pooled by D3, Wald tests by D1; the other tests are not pooled.
+func pooledTestBlock(p *plan.Plan, or *OutcomeResult, perSet [][]*FitEntry, approach fit.Comparison, link fit.Link) *TestBlock {
+	tb := &TestBlock{Approach: approach, Link: link}
+	cell := func(s fit.Structure) *FitEntry { return or.Cell(approach, s, link) }
+	par, np := cell(fit.ParallelEffects), cell(fit.NonparallelEffects)
+	lr := func(r, f *FitEntry) fit.Test { return pooledLR(or, perSet, r, f) }
+	notPooled := func(kind fit.TestKind) fit.Test {
+		return missingTest(kind, "not pooled over imputed data sets (the likelihood-ratio and Wald tests are)")
+	}
+	cumLogit := approach == fit.Cumulative && link == fit.Logit
+	for _, kind := range p.Tests.ParallelLines {
+		switch kind {
+		case fit.TestLR:
+			tb.Global = append(tb.Global, lr(par, np))
+		case fit.TestWald:
+			tb.Global = append(tb.Global, pooledEqualSlopes(np, allColumns(or.Terms)))
+		case fit.TestScore:
+			tb.Global = append(tb.Global, notPooled(kind))
+		case fit.TestBrant, fit.TestWolfeGould:
+			if cumLogit {
+				tb.Global = append(tb.Global, notPooled(kind))
+			}
+		}
+	}
+	for _, term := range or.Terms {
+		vt := VarTests{Predictor: term.Name}
+		for _, kind := range p.Tests.ParallelLines {
+			switch kind {
+			case fit.TestWald:
+				vt.Tests = append(vt.Tests, pooledEqualSlopes(np, term.Columns))
+			case fit.TestLR:
+				if len(or.Terms) > 1 {
+					vt.Tests = append(vt.Tests, lr(or.OnlyParallel(approach, term.Name, link), np))
+				} else {
+					vt.Tests = append(vt.Tests, lr(par, np))
+				}
+			}
+		}
+		if len(vt.Tests) > 0 {
+			tb.PerVariable = append(tb.PerVariable, vt)
+		}
+	}
+	pairs := [][2]fit.Structure{
+		{fit.ParallelEffects, fit.ConstrainedEffects}, {fit.ConstrainedEffects, fit.PartialEffects}, {fit.ParallelEffects, fit.PartialEffects},
+		{fit.PartialEffects, fit.NonparallelEffects}, {fit.ParallelEffects, fit.NonparallelEffects},
+		{fit.ParallelEffects, fit.StereotypeEffects}, {fit.StereotypeEffects, fit.NonparallelEffects},
+	}
+	for _, pr := range pairs {
+		r, f := cell(pr[0]), cell(pr[1])
+		if r == nil || f == nil || r.Auxiliary && f.Auxiliary {
+			continue
+		}
+		tb.Nested = append(tb.Nested, NestedTest{Restricted: r.ID, Full: f.ID, Test: lr(r, f)})
+	}
+	return tb
+}
+
+// pooledLR is the D3 test of restricted within full: the likelihood-ratio
+// statistics of each set at the set's own estimates and at the pooled ones.
+func pooledLR(or *OutcomeResult, perSet [][]*FitEntry, r, f *FitEntry) fit.Test {
+	if r == nil || f == nil {
+		return missingTest(fit.TestLR, "a model was not fitted")
+	}
+	ri, fi := slices.Index(or.Fits, r), slices.Index(or.Fits, f)
+	if !r.OK() || !f.OK() || r.Pooled == nil || f.Pooled == nil {
+		return missingTest(fit.TestLR, "a model has no usable fit in every imputed set")
+	}
+	k := f.Result.NParams - r.Result.NParams
+	mr, err1 := r.Spec.Model()
+	mf, err2 := f.Spec.Model()
+	if k <= 0 || err1 != nil || err2 != nil {
+		return missingTest(fit.TestLR, "the models are not nested")
+	}
+	m := len(perSet)
+	own, at := make([]float64, m), make([]float64, m)
+	for s := range perSet {
+		own[s] = 2 * (perSet[s][fi].Result.LogLik - perSet[s][ri].Result.LogLik)
+		d := or.Imputed.Sets[s]
+		lf, err := fit.PartitionSums(d, mf, f.Result.Estimates, 0)
+		if err != nil || lf.Bad {
+			return missingTest(fit.TestLR, fmt.Sprintf("the full model cannot be evaluated at its pooled estimates in imputed set %d", s+1))
+		}
+		lr, err := fit.PartitionSums(d, mr, r.Result.Estimates, 0)
+		if err != nil || lr.Bad {
+			return missingTest(fit.TestLR, fmt.Sprintf("the restricted model cannot be evaluated at its pooled estimates in imputed set %d", s+1))
+		}
+		at[s] = 2 * (lf.LogLik - lr.LogLik)
+	}
+	t, err := impute.D3(own, at, k)
+	if err != nil {
+		return missingTest(fit.TestLR, err.Error())
+	}
+	return fTest(fit.TestLR, t, r.Result.LogLik, f.Result.LogLik)
+}
+
+// pooledEqualSlopes is the D1 test that the named columns' slopes are
+// equal at every boundary in the pooled nonparallel model.
+func pooledEqualSlopes(np *FitEntry, cols []string) fit.Test {
+	if !np.OK() || np.Pooled == nil {
+		return missingTest(fit.TestWald, "the nonparallel model has no usable fit in every imputed set")
+	}
+	res := np.Result
+	P := len(res.Estimates)
+	var C []float64
+	for _, c := range cols {
+		first := slices.Index(res.ParamNames, c+"[1]")
+		if first < 0 {
+			return missingTest(fit.TestWald, c+" is not a nonparallel predictor of "+np.ID)
+		}
+		for m := 0; m+1 < res.J-1; m++ {
+			row := make([]float64, P)
+			row[first+m], row[first+m+1] = 1, -1
+			C = append(C, row...)
+		}
+	}
+	t, err := impute.D1(np.Pooled, C, nil)
+	if err != nil {
+		return missingTest(fit.TestWald, err.Error())
+	}
+	return fTest(fit.TestWald, t, math.NaN(), math.NaN())
+}
+
+// fTest records a pooled F test in the test record: Chi2 holds DF x F.
+func fTest(kind fit.TestKind, t impute.FTest, llr, llf float64) fit.Test {
+	out := fit.Test{Name: kind.String(), OK: true, Chi2: t.F * float64(t.DF1), DF: t.DF1, P: t.P, Pooled: t.Method, DF2: t.DF2}
+	if !math.IsNaN(llr) {
+		out.LLRestricted, out.LLFull = llr, llf
+	}
+	if math.IsInf(out.DF2, 1) {
+		out.DF2 = 0 // infinite: the F statistic is a chi-square over DF
+	}
+	return out
+}
+
+// runImputedOutcome analyses one outcome on multiply imputed data: the
+// grid is fitted on every imputed set and pooled, the tests are pooled
+// (D3, D1), and the rules run on the pooled fits.
+func runImputedOutcome(p *plan.Plan, oc plan.Outcome, opt Options) (*OutcomeResult, error) {
+	if opt.Executor != nil {
+		return nil, fmt.Errorf("%s: data.imputed: plans on imputed data run on this machine only; run without --queue", p.Path)
+	}
+	// The original file: its missing values are described in the report.
+	orig, err := data.Load(p.Data.Path, dataOptions(p, oc, p.DesignSpec(oc)))
+	if err != nil {
+		return nil, fmt.Errorf("%s (plan %s, outcome %q)", err, p.Path, oc.Column)
+	}
+	run, sets, dz, err := imputedSets(p, oc)
+	if err != nil {
+		return nil, err
+	}
+	ds := *sets[0]
+	ds.Missing = orig.Missing
+	or := &OutcomeResult{Outcome: oc, Data: &ds, FitData: run.Sets[0], Design: dz, Terms: termsOf(dz), dataOptions: dataOptions(p, oc, p.DesignSpec(oc)), Imputed: run}
+	or.Notes = append(or.Notes, dz.Notes...)
+	for k, d := range run.Sets {
+		if err := fit.CheckDesign(d); err != nil {
+			return nil, fmt.Errorf("%s: outcome %q, imputed set %d: %v", p.Path, oc.Column, k+1, err)
+		}
+	}
+	fopt := fit.Options{Covariance: fit.Observed, Workers: 1}
+	if p.Covariance == fit.Expected {
+		fopt.Covariance = fit.Expected
+	}
+	backward := p.Models.Backward()
+	or.FreeSets, _ = freeSets(p, or.Terms, or.FitData, backward, fopt, opt.Workers)
+	jobs, notes := gridJobs(p, or.Terms, or.FreeSets, backward)
+	or.Notes = append(or.Notes, notes...)
+	perSet := poolJobs(p, sets, jobs, run, fopt, opt, oc.Column)
+	or.Fits = jobs
+	for _, a := range p.Models.Approaches {
+		for _, l := range p.Models.Links {
+			or.Tests = append(or.Tests, pooledTestBlock(p, or, perSet, a, l))
+		}
+	}
+	applyRules(p, or)
+	or.Notes = append(or.Notes, fmt.Sprintf("Analysed on %d imputed data sets, pooled by Rubin's rules; log-likelihoods, AIC and BIC are means over the sets, and rules on AIC or BIC compare those means", run.M),
+		"Overall fit, goodness of fit, hypotheses, marginal effects and predictions are not computed on imputed data")
+	return or, nil
+}
+
+// TestStatistic writes a test's statistic for a sentence: "chi2(2) =
+// 3.210", or for a test pooled over imputed sets "F(2, 31.4) = 1.605
+// (pooled, D3)".
+func TestStatistic(t fit.Test) string {
+	if t.Pooled == "" {
+		return fmt.Sprintf("chi2(%d) = %s", t.DF, numfmt.Stat(t.Chi2))
+	}
+	df2 := "inf"
+	if t.DF2 > 0 {
+		df2 = numfmt.Fixed(t.DF2, 1)
+	}
+	return fmt.Sprintf("F(%d, %s) = %s (pooled, %s)", t.DF, df2, numfmt.Stat(t.Chi2/float64(t.DF)), t.Pooled)
+}

@@ -1,0 +1,202 @@
+package runner
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"ordplan/plan"
+)
+
+// imputedFixture writes an invented survey (seeded): y in three ordered
+// categories from a cumulative logit in x1 and x2, x2 missing in about a
+// fifth of the rows of orig.csv, complete.csv with the true values, and
+// stacked.csv with set 0 (the original) and sets 1..m whose missing x2 are
+// the true values (same) or fresh draws (differ).
+func imputedFixture(t *testing.T, m int, same bool) string {
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(7, 11))
+	n := 300
+	var orig, comp, stack strings.Builder
+	orig.WriteString("y,x1,x2\n")
+	comp.WriteString("y,x1,x2\n")
+	stack.WriteString("imp,y,x1,x2\n")
+	type row struct {
+		y      int
+		x1, x2 float64
+		miss   bool
+	}
+	rows := make([]row, n)
+	for i := range rows {
+		x1 := rng.NormFloat64()
+		x2 := 0.5*x1 + rng.NormFloat64()
+		eta := 0.7*x1 - 0.5*x2
+		u := rng.Float64()
+		y := 1
+		for _, c := range []float64{-0.5, 0.8} {
+			if u > 1/(1+math.Exp(-(c-eta))) {
+				y++
+			}
+		}
+		rows[i] = row{y, x1, x2, rng.Float64() < 0.2}
+		fmt.Fprintf(&comp, "%d,%.6f,%.6f\n", y, x1, x2)
+		if rows[i].miss {
+			fmt.Fprintf(&orig, "%d,%.6f,\n", y, x1)
+			fmt.Fprintf(&stack, "0,%d,%.6f,\n", y, x1)
+		} else {
+			fmt.Fprintf(&orig, "%d,%.6f,%.6f\n", y, x1, x2)
+			fmt.Fprintf(&stack, "0,%d,%.6f,%.6f\n", y, x1, x2)
+		}
+	}
+	for k := 1; k <= m; k++ {
+		for _, r := range rows {
+			x2 := r.x2
+			if r.miss && !same {
+				x2 = 0.5*r.x1 + rng.NormFloat64()
+			}
+			fmt.Fprintf(&stack, "%d,%d,%.6f,%.6f\n", k, r.y, r.x1, x2)
+		}
+	}
+	os.WriteFile(filepath.Join(dir, "orig.csv"), []byte(orig.String()), 0o644)
+	os.WriteFile(filepath.Join(dir, "complete.csv"), []byte(comp.String()), 0o644)
+	os.WriteFile(filepath.Join(dir, "stacked.csv"), []byte(stack.String()), 0o644)
+	return dir
+}
+
+func imputedPlan(t *testing.T, dir, data string) (*plan.Plan, error) {
+	src := `version: 1
+title: imputed
+data: ` + data + `
+outcomes: [{column: y}]
+predictors: [x1, x2]
+models: {approaches: [cumulative], effects: [parallel, nonparallel]}
+tests: {parallel_lines: [lr, wald]}
+rules:
+  - reject_if_test_rejects: {test: lr}
+  - choose: {by: bic}
+`
+	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644)
+	return plan.Load(filepath.Join(dir, "p.yaml"))
+}
+
+// TestImputedIdenticalSets: with identical imputed sets the pooled fits
+// are the single-set fits, the between variance is zero, and the pooled
+// likelihood-ratio test (D3) is the single-set test.
+func TestImputedIdenticalSets(t *testing.T) {
+	dir := imputedFixture(t, 3, true)
+	pi, err := imputedPlan(t, dir, "{file: orig.csv, imputed: {file: stacked.csv, column: imp}}")
+	if err != nil {
+		t.Fatal(err)
+	}
+	ri := runPlan(t, pi, 0)
+	ps, err := imputedPlan(t, dir, "{file: complete.csv}")
+	if err != nil {
+		t.Fatal(err)
+	}
+	rs := runPlan(t, ps, 0)
+	oi, os1 := ri.Outcomes[0], rs.Outcomes[0]
+	if oi.Imputed == nil || oi.Imputed.M != 3 {
+		t.Fatalf("imputed run %+v", oi.Imputed)
+	}
+	for _, f := range oi.Fits {
+		g := os1.Find(f.ID)
+		if !f.OK() || !g.OK() || f.Pooled == nil {
+			t.Fatalf("%s: not pooled or not usable", f.ID)
+		}
+		for j := range f.Result.Estimates {
+			if d := math.Abs(f.Result.Estimates[j] - g.Result.Estimates[j]); d > 1e-9 {
+				t.Errorf("%s estimate %d: %g vs %g", f.ID, j, f.Result.Estimates[j], g.Result.Estimates[j])
+			}
+			if d := math.Abs(f.Result.StdErrors[j]/g.Result.StdErrors[j] - 1); d > 1e-9 {
+				t.Errorf("%s se %d: %g vs %g", f.ID, j, f.Result.StdErrors[j], g.Result.StdErrors[j])
+			}
+		}
+		for _, b := range f.Pooled.Between {
+			if math.Abs(b) > 1e-28 { // zero up to the rounding of the mean
+				t.Fatalf("%s: between variance %v", f.ID, f.Pooled.Between)
+			}
+		}
+	}
+	ti, ts := oi.Tests[0].Nested[0].Test, os1.Tests[0].Nested[0].Test
+	if ti.Pooled != "D3" || math.Abs(ti.Chi2-ts.Chi2) > 1e-6 || math.Abs(ti.P-ts.P) > 1e-9 {
+		t.Errorf("D3 %+v vs single-set LR %+v", ti, ts)
+	}
+	if oi.Data.Missing == nil || oi.Data.Missing.ByColumn[2] == 0 {
+		t.Errorf("the missing values of the original file are not described: %+v", oi.Data.Missing)
+	}
+}
+
+// TestImputedDifferentSets: sets that differ give a positive fraction of
+// missing information for x2 and finite degrees of freedom.
+func TestImputedDifferentSets(t *testing.T) {
+	dir := imputedFixture(t, 5, false)
+	p, err := imputedPlan(t, dir, "{file: orig.csv, imputed: {file: stacked.csv, column: imp}}")
+	if err != nil {
+		t.Fatal(err)
+	}
+	or := runPlan(t, p, 0).Outcomes[0]
+	f := or.Find("cumulative/parallel/logit")
+	j := len(f.Result.Estimates) - 1 // x2
+	if pl := f.Pooled; pl == nil || !(pl.FMI[j] > 0 && pl.FMI[j] < 1) || math.IsInf(pl.DF[j], 0) {
+		t.Fatalf("pooled %+v", f.Pooled)
+	}
+	if or.Chosen == nil {
+		t.Fatal("nothing chosen")
+	}
+}
+
+// TestImputedBadInput: gaps in the imputation numbers, one set, sets of
+// different rows or columns are refused with a message naming them.
+func TestImputedBadInput(t *testing.T) {
+	dir := imputedFixture(t, 3, false)
+	b, _ := os.ReadFile(filepath.Join(dir, "stacked.csv"))
+	lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+	write := func(name string, keep func(string) (string, bool)) {
+		out := []string{lines[0]}
+		for _, l := range lines[1:] {
+			if s, ok := keep(l); ok {
+				out = append(out, s)
+			}
+		}
+		os.WriteFile(filepath.Join(dir, name), []byte(strings.Join(out, "\n")+"\n"), 0o644)
+	}
+	write("gap.csv", func(l string) (string, bool) {
+		if strings.HasPrefix(l, "3,") {
+			return "4" + l[1:], true
+		}
+		return l, true
+	})
+	write("one.csv", func(l string) (string, bool) { return l, l[0] == '0' || l[0] == '1' })
+	short := 0
+	write("rows.csv", func(l string) (string, bool) {
+		if l[0] == '2' {
+			short++
+			return l, short > 1
+		}
+		return l, true
+	})
+	os.WriteFile(filepath.Join(dir, "a.csv"), []byte("y,x1,x2\n1,0.1,0.2\n2,0.3,0.1\n3,0.5,0.7\n"), 0o644)
+	os.WriteFile(filepath.Join(dir, "b.csv"), []byte("y,x1,x2,z\n1,0.1,0.2,1\n2,0.3,0.1,1\n3,0.5,0.7,1\n"), 0o644)
+	for _, c := range []struct{ data, want string }{
+		{"{file: orig.csv, imputed: {file: gap.csv, column: imp}}", "imputation numbers must run 1, 2, ..., m without gaps; 3 has no rows but 4 has"},
+		{"{file: orig.csv, imputed: {file: one.csv, column: imp}}", "holds one imputed set only (imputation number 1); pooling needs at least two imputed sets"},
+		{"{file: orig.csv, imputed: {file: rows.csv, column: imp}}", "imputed set 2 has 299 rows but set 1 has 300; imputed sets must hold the same rows"},
+		{"{file: orig.csv, imputed: {files: [a.csv, b.csv]}}", "b.csv has the columns y, x1, x2, z but a.csv has y, x1, x2; imputed sets must have the same columns"},
+		{"{file: orig.csv, imputed: {file: orig.csv, column: imp}}", `data.imputed.column: column "imp" is not in orig.csv`},
+	} {
+		p, err := imputedPlan(t, dir, c.data)
+		if err == nil {
+			_, err = Run(p, Options{})
+		}
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: got %v\nwant %s", c.data, err, c.want)
+		}
+	}
+	if _, err := imputedPlan(t, dir, "{file: orig.csv, imputed: {files: [a.csv]}}"); err == nil || !strings.Contains(err.Error(), "lists 1 file; pooling over imputed data needs at least two imputed sets") {
+		t.Errorf("one file: %v", err)
+	}
+}
