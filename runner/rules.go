@@ -292,7 +292,7 @@ func (env *ruleEnv) judgeTest(r plan.Rule, f *FitEntry) (bool, string) {
 		s := fmt.Sprintf("%s test against %s: %s, %s", r.Test.Title(), full.ID, TestStatistic(tt), pText(tt.P, r.Alpha))
 		env.num("chi2 against "+full.ID, tt.Chi2)
 		env.num("df against "+full.ID, float64(tt.DF))
-		if tt.Pooled != "" {
+		if tt.Pooled != "" && tt.DF2 > 0 { // F denominator df of a pooled test (0: infinite)
 			env.num("df2 against "+full.ID, tt.DF2)
 		}
 		env.num("p against "+full.ID, tt.P)
