@@ -169,8 +169,8 @@ func TestTableTestRule(t *testing.T) {
 			// decisions.json carries the same numbers unrounded.
 			if c.name == "least constrained" {
 				got := or.Rules[0].Verdicts[0].Numbers
-				want := map[string]float64{"chi2 against cumulative/nonparallel/logit": 14.5, "df against cumulative/nonparallel/logit": 2,
-					"p against cumulative/nonparallel/logit": 0.000710174, "alpha": 0.05}
+				want := map[string]float64{"chi2_against_cumulative_nonparallel_logit": 14.5, "df_against_cumulative_nonparallel_logit": 2,
+					"p_against_cumulative_nonparallel_logit": 0.000710174, "alpha": 0.05}
 				if len(got) != len(want) {
 					t.Errorf("numbers %v", got)
 				}

@@ -664,6 +664,7 @@ func catalogue(dir string) (items []badInput) {
 	}
 	items = append(items, registrationItems()...)
 	items = append(items, termItems()...)
+	items = append(items, commandLineItems(dir)...)
 	return items
 }
 
@@ -738,7 +739,7 @@ func TestBadInputCatalogueIsDocumented(t *testing.T) {
 		t.Fatal(err)
 	}
 	inDoc := map[string]bool{}
-	for _, m := range regexp.MustCompile(`(?m)^\| ([PDMWRVTAOQI][0-9]+) \|`).FindAllStringSubmatch(string(doc), -1) {
+	for _, m := range regexp.MustCompile(`(?m)^\| ([PDMWRVTAOQIC][0-9]+) \|`).FindAllStringSubmatch(string(doc), -1) {
 		inDoc[m[1]] = true
 	}
 	tested := map[string]bool{}
@@ -752,5 +753,21 @@ func TestBadInputCatalogueIsDocumented(t *testing.T) {
 		if !tested[id] {
 			t.Errorf("docs/bad-inputs.md lists %s, which the catalogue does not test", id)
 		}
+	}
+}
+
+// commandLineItems are mistakes on the command line: exit code 2, the
+// problem, and where the help is.
+func commandLineItems(dir string) []badInput {
+	d := filepath.Join(dir, "d.csv")
+	return []badInput{
+		{id: "C1", name: "unknown command", args: []string{"fitt"}, code: 2, lines: true,
+			want: []string{`ordplan: unknown command "fitt"`, "commands:"}},
+		{id: "C2", name: "a flag value outside its vocabulary", args: fitArgs(d, "--predictors", "a", "--link", "tanh"), code: 2, lines: true,
+			want: []string{`invalid value "tanh" for flag -link: unknown link "tanh" (want logit, probit, cloglog, loglog or cauchy)`, "Run 'ordplan fit --help' for its flags, each with an example."}},
+		{id: "C3", name: "a word close to an allowed one", args: fitArgs(d, "--predictors", "a", "--covariance", "Sandwich-Plain"), code: 2, lines: true,
+			want: []string{`unknown covariance "Sandwich-Plain" (want observed, expected, sandwich, sandwich_plain or clustered); did you mean "sandwich_plain"?`}},
+		{id: "C4", name: "help on a topic that does not exist", args: []string{"help", "plans"}, code: 2,
+			want: []string{`ordplan help: no command or topic "plans" (commands: run, check, fit, init, rehearse, power, freeze, worker, schema, version; topic: plan)`}},
 	}
 }
