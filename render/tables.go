@@ -196,7 +196,15 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 			rows = append(rows, []string{family, approach, link, scope, t.Name, "", "", "", t.Reason})
 			return
 		}
-		rows = append(rows, []string{family, approach, link, scope, t.Name, csvNum(t.Chi2), strconv.Itoa(t.DF), csvNum(t.P), ""})
+		note := ""
+		if t.Pooled != "" {
+			df2 := "inf"
+			if t.DF2 > 0 {
+				df2 = csvNum(t.DF2)
+			}
+			note = "pooled over imputed sets (" + t.Pooled + "): chi2 is df x F, p from F(df, " + df2 + ")"
+		}
+		rows = append(rows, []string{family, approach, link, scope, t.Name, csvNum(t.Chi2), strconv.Itoa(t.DF), csvNum(t.P), note})
 	}
 	for _, tb := range or.Tests {
 		for _, t := range tb.Global {

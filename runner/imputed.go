@@ -1,11 +1,11 @@
 package runner
 
 import (
+	"bytes"
 	"encoding/csv"
 	"fmt"
 	"io"
 	"math"
-	"os"
 	"slices"
 	"strconv"
 	"strings"
@@ -116,12 +116,11 @@ func imputedSets(p *plan.Plan, oc plan.Outcome) (*ImputedRun, []*data.Dataset, *
 // (the original data, not analysed) or 1..m without gaps, m >= 2, and
 // every set must have as many rows as set 1.
 func imputationNumbers(p *plan.Plan, im *plan.Imputed) (int, error) {
-	f, err := os.Open(im.Path)
+	raw, err := data.ReadFile(im.Path)
 	if err != nil {
-		return 0, fmt.Errorf("%s: data.imputed.file: cannot open %s: %v", p.Path, im.File, err)
+		return 0, fmt.Errorf("%s: data.imputed.file: %v", p.Path, err)
 	}
-	defer f.Close()
-	r := csv.NewReader(f)
+	r := csv.NewReader(bytes.NewReader(raw))
 	r.FieldsPerRecord = -1
 	head, err := r.Read()
 	if err != nil {
@@ -461,4 +460,34 @@ func TestStatistic(t fit.Test) string {
 		df2 = numfmt.Fixed(t.DF2, 1)
 	}
 	return fmt.Sprintf("F(%d, %s) = %s (pooled, %s)", t.DF, df2, numfmt.Stat(t.Chi2/float64(t.DF)), t.Pooled)
+}
+
+// pinImputed pins the imputed data files for the run (every reader parses
+// the bytes whose hashes run.json records) and returns their references.
+func pinImputed(p *plan.Plan) ([]DataRef, func(), error) {
+	im := p.Data.Imputed
+	if im == nil {
+		return nil, func() {}, nil
+	}
+	files, paths, key := im.Files, im.Paths, "data.imputed.files"
+	if files == nil {
+		files, paths, key = []string{im.File}, []string{im.Path}, "data.imputed.file"
+	}
+	var refs []DataRef
+	var unpins []func()
+	release := func() {
+		for _, u := range unpins {
+			u()
+		}
+	}
+	for i, path := range paths {
+		h, unpin, err := data.Pin(path)
+		if err != nil {
+			release()
+			return nil, func() {}, fmt.Errorf("%s: %s: %v", p.Path, key, err)
+		}
+		unpins = append(unpins, unpin)
+		refs = append(refs, DataRef{File: files[i], SHA256: h})
+	}
+	return refs, release, nil
 }

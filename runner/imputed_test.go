@@ -147,6 +147,13 @@ func TestImputedDifferentSets(t *testing.T) {
 	if or.Chosen == nil {
 		t.Fatal("nothing chosen")
 	}
+	rec := imputationRecord(or)
+	if rec == nil || rec.Sets != 5 || len(rec.Pooling) != 2 || rec.Pooling[0].Parameters[j].FMI != f.Pooled.FMI[j] {
+		t.Errorf("decisions.json imputation record %+v", rec)
+	}
+	if nt := or.Tests[0].Nested[0].Test; nt.Pooled != "D3" || !(nt.DF2 > 0) || !strings.Contains(TestStatistic(nt), "(pooled, D3)") {
+		t.Errorf("nested test %+v: %s", nt, TestStatistic(nt))
+	}
 }
 
 // TestImputedBadInput: gaps in the imputation numbers, one set, sets of

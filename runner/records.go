@@ -6,6 +6,7 @@ import (
 	"encoding/hex"
 	"encoding/json"
 	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"sort"
@@ -72,6 +73,67 @@ type OutcomeDecisions struct {
 	// constant frozen from the data (omitted when every term is a numeric
 	// column as it is).
 	Terms []design.TermRecord `json:"terms,omitempty"`
+	// Imputation: how the outcome was pooled over imputed data sets.
+	Imputation *ImputationRecord `json:"imputation,omitempty"`
+}
+
+// ImputationRecord is the pooling of one outcome over imputed data sets:
+// the sets, and Rubin's rules per parameter of every pooled candidate.
+type ImputationRecord struct {
+	Sets    int          `json:"sets"`
+	Source  string       `json:"source"` // stacked or files
+	Files   []string     `json:"files"`
+	Column  string       `json:"column,omitempty"`
+	Rows    int          `json:"rows_per_set"`
+	Method  string       `json:"method"`
+	Pooling []PoolingFit `json:"pooling"`
+}
+
+// PoolingFit is Rubin's rules for the parameters of one candidate.
+type PoolingFit struct {
+	Model      string         `json:"model"`
+	Parameters []PoolingParam `json:"parameters"`
+}
+
+// PoolingParam is one pooled parameter (variances, not standard errors;
+// df null when infinite).
+type PoolingParam struct {
+	Name     string   `json:"name"`
+	Estimate float64  `json:"estimate"`
+	Within   float64  `json:"within_variance"`
+	Between  float64  `json:"between_variance"`
+	Total    float64  `json:"total_variance"`
+	DF       *float64 `json:"df"`
+	RIV      float64  `json:"relative_increase_in_variance"`
+	FMI      float64  `json:"fraction_missing_information"`
+}
+
+func imputationRecord(or *OutcomeResult) *ImputationRecord {
+	im := or.Imputed
+	if im == nil {
+		return nil
+	}
+	rec := &ImputationRecord{Sets: im.M, Source: im.Source, Files: im.Files, Column: im.Column, Rows: im.Rows,
+		Method:  "Rubin's rules with Barnard-Rubin degrees of freedom; likelihood-ratio tests pooled by D3, Wald tests by D1; log-likelihood, AIC and BIC are means over the sets",
+		Pooling: []PoolingFit{}}
+	for _, f := range or.Fits {
+		if f.Auxiliary || f.Pooled == nil || !f.OK() {
+			continue
+		}
+		pl := f.Pooled
+		pf := PoolingFit{Model: f.ID}
+		for j, n := range f.Result.ParamNames {
+			pp := PoolingParam{Name: n, Estimate: pl.Estimate[j], Within: pl.Within[j*pl.P+j], Between: pl.Between[j*pl.P+j],
+				Total: pl.Total[j*pl.P+j], RIV: pl.RIV[j], FMI: pl.FMI[j]}
+			if !math.IsInf(pl.DF[j], 0) {
+				df := pl.DF[j]
+				pp.DF = &df
+			}
+			pf.Parameters = append(pf.Parameters, pp)
+		}
+		rec.Pooling = append(rec.Pooling, pf)
+	}
+	return rec
 }
 
 // FreeSetRecord is a partial set in JSON.
@@ -157,6 +219,7 @@ func BuildDecisions(r *Result) *Decisions {
 			od.Chosen = &id
 		}
 		od.Overall = or.Overall
+		od.Imputation = imputationRecord(or)
 		if od.Overall == nil {
 			od.Overall = []OverallRecord{}
 		}
@@ -206,12 +269,13 @@ func MarshalStable(v any) ([]byte, error) {
 
 // RunRecord is the content of run.json: what produced the outputs.
 type RunRecord struct {
-	Program string   `json:"program"`
-	Version string   `json:"version"`
-	Plan    PlanRef  `json:"plan"`
-	Data    DataRef  `json:"data"`
-	NewRows *DataRef `json:"new_rows,omitempty"`
-	Seed    uint64   `json:"seed"`
+	Program string    `json:"program"`
+	Version string    `json:"version"`
+	Plan    PlanRef   `json:"plan"`
+	Data    DataRef   `json:"data"`
+	NewRows *DataRef  `json:"new_rows,omitempty"`
+	Imputed []DataRef `json:"imputed,omitempty"` // the imputed data files
+	Seed    uint64    `json:"seed"`
 	// Registration is the plan compared with its lock (absent when not compared).
 	Registration *RegistrationRecord `json:"registration,omitempty"`
 	Outputs      map[string]string   `json:"outputs_sha256"`
@@ -231,7 +295,7 @@ func WriteFiles(r *Result, dir string, files map[string][]byte) error {
 	}
 	rec := RunRecord{Program: "ordplan", Version: r.Version,
 		Plan: PlanRef{File: filepath.Base(r.Plan.Path), Title: r.Plan.Title, SHA256: r.Plan.Hash},
-		Data: DataRef{File: r.Plan.Data.File, SHA256: r.DataHash}, NewRows: newRowsRef(r), Seed: r.Plan.Seed, Outputs: map[string]string{}}
+		Data: DataRef{File: r.Plan.Data.File, SHA256: r.DataHash}, NewRows: newRowsRef(r), Imputed: r.Imputed, Seed: r.Plan.Seed, Outputs: map[string]string{}}
 	rec.Timestamp = r.Started
 	rec.GoVersion, rec.Platform, rec.Command = r.GoVersion, r.Platform, r.Command
 	rec.Registration = registrationRecord(r.Registration)

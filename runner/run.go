@@ -48,6 +48,12 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 		defer unpinNew()
 		res.NewRowsHash = h
 	}
+	imputed, unpinImputed, err := pinImputed(p)
+	if err != nil {
+		return nil, err
+	}
+	defer unpinImputed()
+	res.Imputed = imputed
 	if err := ValidateData(p); err != nil {
 		return nil, err
 	}

@@ -16,10 +16,12 @@ type Result struct {
 	// NewRowsHash is the hex SHA-256 of the plan's new-rows file
 	// (inference.predict), "" when there is none.
 	NewRowsHash string
-	Version     string
-	Outcomes    []*OutcomeResult
-	Notes       []string // run-level remarks (covariance, weights)
-	Started     string   // UTC start time, only when the plan asks for timestamps
+	// Imputed names the imputed data files of the run with their hashes.
+	Imputed  []DataRef
+	Version  string
+	Outcomes []*OutcomeResult
+	Notes    []string // run-level remarks (covariance, weights)
+	Started  string   // UTC start time, only when the plan asks for timestamps
 
 	GoVersion string // the Go release the program was built with
 	Platform  string // operating system/architecture
