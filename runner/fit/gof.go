@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strings"
 )
 
 // Goodness of fit by groups of the ordinal score (see docs/models.md,
@@ -192,7 +193,11 @@ func LipsitzTest(d *Data, r *Result, groups int, opt Options) (*Lipsitz, error) 
 	opt.Sandwich = nil
 	full, err := Fit(ad, am, opt)
 	if err != nil {
-		out.Test = failedTest("lipsitz", "the model with group indicators could not be fitted: %v", err)
+		if strings.Contains(err.Error(), "collinear") {
+			out.Test = failedTest("lipsitz", "not defined for these data: the score groups coincide with values of the predictors (too few distinct predictor patterns for %d groups), so their indicators are a combination of the predictors (%v)", G, err)
+		} else {
+			out.Test = failedTest("lipsitz", "the model with group indicators could not be fitted: %v", err)
+		}
 		return out, nil
 	}
 	out.Test = LRTest(r, full)

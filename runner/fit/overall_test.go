@@ -3,6 +3,7 @@ package fit
 import (
 	"math"
 	"sort"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/stat"
@@ -343,5 +344,25 @@ func TestScoreGroupsWeightsAndTies(t *testing.T) {
 				t.Errorf("group %d category %d differs between weighted and expanded data", g+1, j+1)
 			}
 		}
+	}
+}
+
+// TestLipsitzNotDefinedOnFewPatterns: when the score groups coincide with
+// predictor values (wine, Randall 1989: four patterns of temp and contact,
+// two groups), the test is reported as not defined, with the reason.
+func TestLipsitzNotDefinedOnFewPatterns(t *testing.T) {
+	t.Logf("data: %s", refSources["wine"])
+	rs := loadRef(t, "wine")
+	d := rs.data([]string{"temp", "contact"})
+	r, err := Fit(d, Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(2, Parallel)}, Options{})
+	if err != nil || !r.OK() {
+		t.Fatal(err)
+	}
+	lz, err := LipsitzTest(d, r, 0, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if lz.Test.OK || !strings.Contains(lz.Test.Reason, "not defined for these data") || lz.Table == nil || lz.Table.Groups != 2 {
+		t.Errorf("got %+v with %d groups", lz.Test, lz.Table.Groups)
 	}
 }
