@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"strings"
 
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 
@@ -79,7 +80,7 @@ var Spec = mkey("", "An analysis plan.",
 	mkey("data", "Where the observations are and how to read them.",
 		k("file", KindText, "The CSV data file, relative to the plan's folder.").req(),
 		k("missing", KindWord, "Rows with a missing value: drop them (counted in the report) or refuse to run.").words(missingWords).dflt("drop"),
-		k("missing_values", KindNames, "Cell texts that mean a missing value.").dflt(`"", NA, NaN, .`),
+		k("missing_values", KindNames, "Cell texts that mean a missing value.").dflt(missingDefault()),
 		k("weights", KindName, "A column of case weights."),
 		k("weight_kind", KindWord, "What the weights are: frequency weights (repeated rows) or sampling weights (a pseudo-likelihood with sandwich errors).").words(weightKindWords).dflt("frequency"),
 		k("offset", KindName, "A column added to every linear predictor."),
@@ -440,4 +441,16 @@ func schemaOf(x *Key) map[string]any {
 		s["items"] = map[string]any{"oneOf": kinds}
 	}
 	return s
+}
+
+// missingDefault writes the reader's default missing-value markers.
+func missingDefault() string {
+	var out []string
+	for _, m := range data.DefaultMissing {
+		if m == "" {
+			m = `""`
+		}
+		out = append(out, m)
+	}
+	return strings.Join(out, ", ")
 }
