@@ -2,6 +2,7 @@ package runner
 
 import (
 	"fmt"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -98,7 +99,16 @@ func parseCompactTerm(item string, earlier map[string]bool) (design.TermSpec, *d
 		k, v, hasV := strings.Cut(o, "=")
 		switch {
 		case k == "levels":
-			src.Cat = &design.Categorical{Levels: strings.Split(v, "/"), Coding: design.Treatment, Unobserved: design.UnobservedRefuse}
+			levels := strings.Split(v, "/")
+			if len(levels) < 2 {
+				return t, nil, fmt.Errorf("levels=%s: a categorical column needs at least 2 levels, separated by /", v)
+			}
+			for i, l := range levels {
+				if l == "" || slices.Contains(levels[:i], l) {
+					return t, nil, fmt.Errorf("levels=%s: level %q is empty or given twice", v, l)
+				}
+			}
+			src.Cat = &design.Categorical{Levels: levels, Coding: design.Treatment, Unobserved: design.UnobservedRefuse}
 			src.Cat.Reference = src.Cat.Levels[0]
 		case k == "ref" || k == "coding" || k == "drop":
 			// applied below, once the levels are known

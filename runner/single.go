@@ -60,6 +60,7 @@ func FitOne(s SingleFit) (*fit.Result, *data.Dataset, error) {
 	if err != nil {
 		return nil, ds, fmt.Errorf("%s: %v", s.DataFile, err)
 	}
+	ds.Notes = append(ds.Notes, dz.Notes...)
 	terms := termsOf(dz)
 	spec := Spec{Approach: s.Approach, Backward: s.Backward, Link: s.Link, Predictors: dz.Columns,
 		Nonparallel: columnsOf(terms, s.Nonparallel)}

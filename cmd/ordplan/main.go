@@ -237,7 +237,11 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		}
 		stdout.Write(b)
 	} else {
-		sum := render.DataSummary{File: *dataFile, Outcome: *outcome, RowsRead: ds.RowsRead, RowsUsed: ds.N, DropSummary: ds.DropSummary()}
+		drop := ds.DropSummary()
+		for _, n := range ds.Notes {
+			drop += "; " + strings.TrimSuffix(n, ".")
+		}
+		sum := render.DataSummary{File: *dataFile, Outcome: *outcome, RowsRead: ds.RowsRead, RowsUsed: ds.N, DropSummary: drop}
 		if err := render.FitTable(stdout, res, sum, *level); err != nil {
 			return fail(stderr, err)
 		}

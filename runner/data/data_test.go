@@ -44,7 +44,7 @@ func TestReadErrors(t *testing.T) {
 		{"bad quote", "y,a,b\n1,2,3\n1,x\"y,3\n", opts, 3, "",
 			`t.csv:3: malformed CSV at character 4: bare " in non-quoted-field`},
 		{"non-numeric predictor", "y,a,b\n1,2,3\n2,abc,4\n", opts, 3, "a",
-			`t.csv:3: column "a": value "abc" is not a number; the column holds text: declare it categorical (under categorical: with its levels) to use it as a predictor`},
+			`t.csv:3: column "a": value "abc" is not a number; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)`},
 		{"underscore number", "y,a,b\n1,2,3\n2,1_000,4\n", opts, 3, "a",
 			`t.csv:3: column "a": value "1_000" is not a number`},
 		{"literal Inf", "y,a,b\n1,2,Inf\n", opts, 2, "b",
@@ -90,13 +90,13 @@ func TestReadErrors(t *testing.T) {
 		{"single declared category", "y,a\n1,2\n", Options{Outcome: "y", Categories: []string{"a"}}, 0, "",
 			`t.csv: only one outcome category declared ("a"); at least two are needed`},
 		{"line after quoted newline", "y,a,b\n1,\"2\n\",3\n2,q,3\n", opts, 4, "a",
-			`t.csv:4: column "a": value "q" is not a number; the column holds text: declare it categorical (under categorical: with its levels) to use it as a predictor`},
+			`t.csv:4: column "a": value "q" is not a number; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)`},
 		{"field line is where the field starts", "y,a,b\n1,\"2\n\",\"\nq\"\n", opts, 3, "b",
-			`t.csv:3: column "b": value "q" is not a number; the column holds text: declare it categorical (under categorical: with its levels) to use it as a predictor`},
+			`t.csv:3: column "b": value "q" is not a number; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)`},
 		{"error line counts CRLF", "y,a,b\r\n1,2,3\r\n2,x,3\r\n", opts, 3, "a",
-			`t.csv:3: column "a": value "x" is not a number; the column holds text: declare it categorical (under categorical: with its levels) to use it as a predictor`},
+			`t.csv:3: column "a": value "x" is not a number; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)`},
 		{"long value shortened", "y,a\n1," + strings.Repeat("z", 60) + "\n", Options{Outcome: "y", Predictors: []string{"a"}}, 2, "a",
-			`t.csv:2: column "a": value "` + strings.Repeat("z", 40) + `"... is not a number; the column holds text: declare it categorical (under categorical: with its levels) to use it as a predictor`},
+			`t.csv:2: column "a": value "` + strings.Repeat("z", 40) + `"... is not a number; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)`},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {

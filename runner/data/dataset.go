@@ -53,6 +53,9 @@ type Dataset struct {
 	// RowsOutside is the number of rows the subset conditions dropped
 	// (included in RowsDropped).
 	RowsOutside int
+	// Notes are remarks of the steps after reading that the user must see
+	// (a declared level dropped because no row has it).
+	Notes []string
 }
 
 // MissingTable is the missing-value pattern of the used columns (outcome,

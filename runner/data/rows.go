@@ -118,7 +118,7 @@ func (r *reader) rows() (*Dataset, error) {
 					}
 					xs[c.pos] = float64(l)
 				} else if xs[c.pos], msg = parseNumber(cell); strings.HasSuffix(msg, " is not a number") && !isNumberLike(cell) {
-					msg += "; the column holds text: declare it categorical (under categorical: with its levels) to use it as a predictor"
+					msg += "; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)"
 				}
 			case roleWeights:
 				w, msg = parseNumber(cell)

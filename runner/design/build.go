@@ -200,9 +200,9 @@ func (d *Design) buildCategorical(t *Term, src Source, v, w []float64) error {
 			return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("the reference level %q occurs in no row used; choose another reference", name)}
 		case c.Unobserved == UnobservedDrop:
 			t.Dropped = append(t.Dropped, name)
-			d.Notes = append(d.Notes, fmt.Sprintf("Level %q of %s occurs in no row used; its column was dropped (%s: unobserved: drop).", name, src.Name, t.Key))
+			d.Notes = append(d.Notes, fmt.Sprintf("Level %q of %s occurs in no row used; its column was dropped, as asked (%s).", name, src.Name, t.Key))
 		default:
-			return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("level %q is declared but occurs in no row used; remove it from the levels, or set unobserved: drop to drop its column", name)}
+			return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("level %q is declared but occurs in no row used; remove it from the levels, or have its column dropped (in a plan unobserved: drop, in ordplan fit |drop)", name)}
 		}
 	}
 	if len(keptIdx) < 2 {
