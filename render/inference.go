@@ -40,6 +40,9 @@ func writeHypotheses(d *doc, or *runner.OutcomeResult) {
 		if !h.Test.OK {
 			row = []string{"`" + h.Text + "`", fmt.Sprint(h.Line), model, "", "", "not computed: " + h.Test.Reason}
 		} else {
+			if h.Test.Pooled != "" {
+				model += " (pooled, " + h.Test.Pooled + ")"
+			}
 			row = []string{"`" + h.Text + "`", fmt.Sprint(h.Line), model, numfmt.Stat(h.Test.Chi2), fmt.Sprint(h.Test.DF), numfmt.PValue(h.Test.P)}
 		}
 		if adjusted != "" {

@@ -443,8 +443,11 @@ func runImputedOutcome(p *plan.Plan, oc plan.Outcome, opt Options) (*OutcomeResu
 		}
 	}
 	applyRules(p, or)
-	or.Notes = append(or.Notes, fmt.Sprintf("Analysed on %d imputed data sets, pooled by Rubin's rules; log-likelihoods, AIC and BIC are means over the sets, and rules on AIC or BIC compare those means", run.M),
-		"Overall fit, goodness of fit, hypotheses, marginal effects and predictions are not computed on imputed data")
+	for _, h := range p.Inference.Hypotheses {
+		or.Hypotheses = append(or.Hypotheses, hypothesisTests(h, or)...)
+	}
+	or.Notes = append(or.Notes, fmt.Sprintf("Analysed on %d imputed data sets, pooled by Rubin's rules; log-likelihoods, AIC and BIC are means over the sets, and rules on AIC or BIC compare those means; the plan's hypotheses are pooled Wald tests (D1)", run.M),
+		"Overall fit, goodness of fit, marginal effects and predictions are not computed on imputed data")
 	return or, nil
 }
 
@@ -490,4 +493,17 @@ func pinImputed(p *plan.Plan) ([]DataRef, func(), error) {
 		refs = append(refs, DataRef{File: files[i], SHA256: h})
 	}
 	return refs, release, nil
+}
+
+// pooledLinear is the D1 test of a linear hypothesis in a pooled fit.
+func pooledLinear(f *FitEntry, hy *fit.Hypothesis) fit.Test {
+	var C []float64
+	for _, row := range hy.R {
+		C = append(C, row...)
+	}
+	t, err := impute.D1(f.Pooled, C, hy.C)
+	if err != nil {
+		return missingTest(fit.TestWald, err.Error())
+	}
+	return fTest(fit.TestWald, t, math.NaN(), math.NaN())
 }

@@ -78,6 +78,8 @@ tests: {parallel_lines: [lr, wald]}
 rules:
   - reject_if_test_rejects: {test: lr}
   - choose: {by: bic}
+inference:
+  hypotheses: ["x2 = 0"]
 `
 	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644)
 	return plan.Load(filepath.Join(dir, "p.yaml"))
@@ -125,6 +127,13 @@ func TestImputedIdenticalSets(t *testing.T) {
 	if ti.Pooled != "D3" || math.Abs(ti.Chi2-ts.Chi2) > 1e-6 || math.Abs(ti.P-ts.P) > 1e-9 {
 		t.Errorf("D3 %+v vs single-set LR %+v", ti, ts)
 	}
+	// D1 of identical sets is the single-set Wald test (chi-square p).
+	for i, h := range oi.Hypotheses {
+		g := os1.Hypotheses[i]
+		if h.Test.Pooled != "D1" || math.Abs(h.Test.Chi2-g.Test.Chi2) > 1e-6*g.Test.Chi2 || math.Abs(h.Test.P-g.Test.P) > 1e-9 {
+			t.Errorf("hypothesis in %s: D1 %+v vs single-set Wald %+v", h.Model, h.Test, g.Test)
+		}
+	}
 	if oi.Data.Missing == nil || oi.Data.Missing.ByColumn[2] == 0 {
 		t.Errorf("the missing values of the original file are not described: %+v", oi.Data.Missing)
 	}
@@ -150,6 +159,9 @@ func TestImputedDifferentSets(t *testing.T) {
 	rec := imputationRecord(or)
 	if rec == nil || rec.Sets != 5 || len(rec.Pooling) != 2 || rec.Pooling[0].Parameters[j].FMI != f.Pooled.FMI[j] {
 		t.Errorf("decisions.json imputation record %+v", rec)
+	}
+	if len(or.Hypotheses) == 0 || or.Hypotheses[0].Test.Pooled != "D1" || !or.Hypotheses[0].Test.OK {
+		t.Errorf("hypothesis on imputed data: %+v", or.Hypotheses)
 	}
 	if nt := or.Tests[0].Nested[0].Test; nt.Pooled != "D3" || !(nt.DF2 > 0) || !strings.Contains(TestStatistic(nt), "(pooled, D3)") {
 		t.Errorf("nested test %+v: %s", nt, TestStatistic(nt))

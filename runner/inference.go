@@ -285,6 +285,10 @@ func hypothesisTests(h plan.Hypothesis, or *OutcomeResult) []HypothesisResult {
 			out = append(out, HypothesisResult{Text: h.Text, Line: h.Line, Model: f.ID, Test: fit.Test{Name: fit.TestWald.String(), Reason: err.Error()}})
 			continue
 		}
+		if f.Pooled != nil {
+			out = append(out, HypothesisResult{Text: h.Text, Line: h.Line, Model: f.ID, Test: pooledLinear(f, hy)})
+			continue
+		}
 		out = append(out, HypothesisResult{Text: h.Text, Line: h.Line, Model: f.ID, Test: fit.WaldLinear(f.Result, hy)})
 	}
 	if len(out) == 0 {
