@@ -65,3 +65,17 @@ func TestLockOutput(t *testing.T) {
 		t.Errorf("a file as output folder: %v", err)
 	}
 }
+
+// Outputs of the previous run that this run does not write are removed
+// once the new files are in place; other files of the folder are not.
+func TestStaleOutputsRemoved(t *testing.T) {
+	dir := t.TempDir()
+	os.WriteFile(filepath.Join(dir, "run.json"), []byte(`{"outputs_sha256": {"old.csv": "x", "keep.md": "y", "../escape": "z"}}`), 0o644)
+	os.WriteFile(filepath.Join(dir, "old.csv"), []byte("old"), 0o644)
+	os.WriteFile(filepath.Join(dir, "mine.txt"), []byte("user"), 0o644)
+	files := map[string][]byte{"keep.md": []byte("new"), "run.json": []byte("{}")}
+	stale := staleOutputs(dir, files)
+	if len(stale) != 1 || stale[0] != "old.csv" {
+		t.Fatalf("stale %v", stale)
+	}
+}

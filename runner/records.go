@@ -325,7 +325,17 @@ func WriteFiles(r *Result, dir string, files map[string][]byte) error {
 		all[n] = c
 	}
 	all["run.json"] = b
-	return writeAll(dir, append(names, "run.json"), all)
+	stale := staleOutputs(dir, all)
+	if err := writeAll(dir, append(names, "run.json"), all); err != nil {
+		return err
+	}
+	// Files the previous run listed and this one does not write (the
+	// predictions of an outcome no longer predicted) would sit beside the
+	// new run.json as if they were its own: remove them.
+	for _, n := range stale {
+		os.Remove(filepath.Join(dir, n))
+	}
+	return nil
 }
 
 // newRowsRef names the new-rows file of a run, or nil.
@@ -334,4 +344,35 @@ func newRowsRef(r *Result) *DataRef {
 		return nil
 	}
 	return &DataRef{File: r.Plan.Inference.Predict, SHA256: r.NewRowsHash}
+}
+
+// staleOutputs lists the outputs named by the run.json in dir that are not
+// among files: plain file names of regular files (never a symlink).
+func staleOutputs(dir string, files map[string][]byte) []string {
+	path := filepath.Join(dir, "run.json")
+	fi, err := os.Lstat(path)
+	if err != nil || !fi.Mode().IsRegular() || fi.Size() > 64<<20 {
+		return nil
+	}
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return nil
+	}
+	var prev struct {
+		Outputs map[string]string `json:"outputs_sha256"`
+	}
+	if json.Unmarshal(b, &prev) != nil {
+		return nil
+	}
+	var out []string
+	for n := range prev.Outputs {
+		if _, keep := files[n]; keep || n != filepath.Base(n) || strings.HasPrefix(n, ".") || n == "run.json" {
+			continue
+		}
+		if fi, err := os.Lstat(filepath.Join(dir, n)); err == nil && fi.Mode().IsRegular() {
+			out = append(out, n)
+		}
+	}
+	sort.Strings(out)
+	return out
 }
