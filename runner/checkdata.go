@@ -21,6 +21,11 @@ func CheckData(p *plan.Plan) error {
 		if err := fit.CheckDesign(d); err != nil {
 			return fmt.Errorf("%s: outcome %q: %v", p.Data.File, oc.Column, err)
 		}
+		if p.Data.Imputed != nil {
+			if _, _, _, err := imputedSets(p, oc); err != nil {
+				return err
+			}
+		}
 	}
 	return nil
 }

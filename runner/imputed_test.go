@@ -214,6 +214,11 @@ func TestImputedBadInput(t *testing.T) {
 		if err == nil || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("%s: got %v\nwant %s", c.data, err, c.want)
 		}
+		if p != nil {
+			if err := CheckData(p); err == nil || !strings.Contains(err.Error(), c.want) {
+				t.Errorf("check %s: got %v\nwant %s", c.data, err, c.want)
+			}
+		}
 	}
 	if _, err := imputedPlan(t, dir, "{file: orig.csv, imputed: {files: [a.csv]}}"); err == nil || !strings.Contains(err.Error(), "lists 1 file; pooling over imputed data needs at least two imputed sets") {
 		t.Errorf("one file: %v", err)
