@@ -31,19 +31,13 @@ func (br *BrantResult) Joint(names []string) Test {
 	}
 	K := len(br.predictors)
 	q := len(br.Slopes)
-	N := q * K
 	var rows [][]float64
 	for _, n := range names {
 		k := indexOf(br.predictors, n)
 		if k < 0 {
 			return failedTest(TestBrant.String(), "%s is not a predictor", n)
 		}
-		for m := 1; m < q; m++ {
-			r := make([]float64, N)
-			r[k] = 1
-			r[m*K+k] = -1
-			rows = append(rows, r)
-		}
+		rows = append(rows, equalSlopeRows(k, q, K)...)
 	}
 	x, err := waldStat(rows, br.beta, br.cov)
 	if err != nil {
@@ -83,7 +77,9 @@ func binaryFits(d *Data, opt Options) ([]*Result, error) {
 }
 
 // Brant computes the Brant test. It needs the logit link's binary fits and
-// is defined for the cumulative comparison only.
+// is defined for the cumulative comparison only. Its phases: the J-1 binary
+// logits of 1[y > m], their fitted probabilities, the joint covariance of
+// their slopes, and Wald tests that each predictor's slopes are equal.
 func Brant(d *Data, opt Options) *BrantResult {
 	br := &BrantResult{}
 	if err := d.validate(); err != nil {
@@ -99,13 +95,34 @@ func Brant(d *Data, opt Options) *BrantResult {
 		br.Reason = "Brant test cannot be computed: " + err.Error()
 		return br
 	}
-	n, K, q := len(d.Y), len(d.Predictors), d.J-1
-	k1 := K + 1
-	// pi[m][i] = P(y > m | x_i) from binary fit m.
-	pi := make([][]float64, q)
+	for _, f := range fits {
+		br.Slopes = append(br.Slopes, f.Effects[0])
+	}
+	V, err := brantCovariance(d, binaryProbs(d, fits))
+	if err != nil {
+		br.Reason = "Brant test cannot be computed: " + err.Error()
+		return br
+	}
+	K := len(d.Predictors)
+	beta := make([]float64, len(fits)*K)
+	for m, b := range br.Slopes {
+		copy(beta[m*K:], b)
+	}
+	if err := br.equalSlopeTests(d.Predictors, beta, V); err != nil {
+		br.Reason = "Brant test cannot be computed: " + err.Error()
+		return br
+	}
+	br.beta, br.cov, br.predictors = beta, V, d.Predictors
+	br.OK = true
+	return br
+}
+
+// binaryProbs returns pi[m][i] = P(y > m | x_i) from binary fit m.
+func binaryProbs(d *Data, fits []*Result) [][]float64 {
+	n, K := len(d.Y), len(d.Predictors)
+	pi := make([][]float64, len(fits))
 	for m, f := range fits {
 		pi[m] = make([]float64, n)
-		br.Slopes = append(br.Slopes, f.Effects[0])
 		for i := 0; i < n; i++ {
 			eta := -f.Cutpoints[0]
 			for k := 0; k < K; k++ {
@@ -118,12 +135,17 @@ func Brant(d *Data, opt Options) *BrantResult {
 			pi[m][i] = F
 		}
 	}
-	w := func(i int) float64 {
-		if d.Weights == nil {
-			return 1
-		}
-		return d.Weights[i]
-	}
+	return pi
+}
+
+// brantCovariance is the joint covariance of the stacked slopes of the
+// binary logits (intercepts dropped), (J-1)K x (J-1)K: the inverse
+// information of each logit on the diagonal, and off it the products
+// inv(I_m) X' W_ml X inv(I_l) with W_ml = diag(pi_l - pi_m pi_l).
+func brantCovariance(d *Data, pi [][]float64) ([]float64, error) {
+	n, K, q := len(d.Y), len(d.Predictors), len(pi)
+	k1 := K + 1
+	// cross is X' diag(weight) X with the constant column first.
 	cross := func(weight func(i int) float64) *mat.Dense {
 		A := mat.NewDense(k1, k1, nil)
 		xt := make([]float64, k1)
@@ -144,15 +166,13 @@ func Brant(d *Data, opt Options) *BrantResult {
 	}
 	inv := make([]*mat.Dense, q)
 	for m := 0; m < q; m++ {
-		A := cross(func(i int) float64 { return w(i) * pi[m][i] * (1 - pi[m][i]) })
+		A := cross(func(i int) float64 { return d.weight(i) * pi[m][i] * (1 - pi[m][i]) })
 		var Ai mat.Dense
 		if err := Ai.Inverse(A); err != nil {
-			br.Reason = fmt.Sprintf("Brant test cannot be computed: the information of the logit of 1[y > %s] is singular", d.categories()[m])
-			return br
+			return nil, fmt.Errorf("the information of the logit of 1[y > %s] is singular", d.categories()[m])
 		}
 		inv[m] = &Ai
 	}
-	// Joint covariance of the stacked slopes (intercepts dropped).
 	N := q * K
 	V := make([]float64, N*N)
 	for m := 0; m < q; m++ {
@@ -161,7 +181,7 @@ func Brant(d *Data, opt Options) *BrantResult {
 			if l == m {
 				C.CloneFrom(inv[m])
 			} else {
-				B := cross(func(i int) float64 { return w(i) * (pi[l][i] - pi[m][i]*pi[l][i]) })
+				B := cross(func(i int) float64 { return d.weight(i) * (pi[l][i] - pi[m][i]*pi[l][i]) })
 				var t mat.Dense
 				t.Mul(inv[m], B)
 				C.Mul(&t, inv[l])
@@ -175,41 +195,48 @@ func Brant(d *Data, opt Options) *BrantResult {
 			}
 		}
 	}
-	beta := make([]float64, N)
-	for m := 0; m < q; m++ {
-		copy(beta[m*K:], br.Slopes[m])
+	return V, nil
+}
+
+// equalSlopeRows are the J-2 rows of the hypothesis that predictor k
+// (of K) has the same slope in all q binary logits (stacked slopes, logit
+// by logit): beta_1k - beta_mk = 0 for m = 2..q.
+func equalSlopeRows(k, q, K int) [][]float64 {
+	var rows [][]float64
+	for m := 1; m < q; m++ {
+		r := make([]float64, q*K)
+		r[k] = 1
+		r[m*K+k] = -1
+		rows = append(rows, r)
 	}
-	rowsFor := func(k int) [][]float64 {
-		var rows [][]float64
-		for m := 1; m < q; m++ {
-			r := make([]float64, N)
-			r[k] = 1
-			r[m*K+k] = -1
-			rows = append(rows, r)
-		}
-		return rows
-	}
+	return rows
+}
+
+// equalSlopeTests sets the Wald test of equal slopes across the binary
+// logits for each predictor (beta_1k = beta_mk for m = 2..J-1) and the
+// omnibus test of all of them, from the stacked slopes beta and their
+// covariance V.
+func (br *BrantResult) equalSlopeTests(predictors []string, beta, V []float64) error {
+	K := len(predictors)
+	q := len(beta) / max(K, 1)
 	var all [][]float64
 	for k := 0; k < K; k++ {
-		rows := rowsFor(k)
+		rows := equalSlopeRows(k, q, K)
 		all = append(all, rows...)
 		x, err := waldStat(rows, beta, V)
 		t := chi2Test(TestBrant.String(), x, len(rows))
 		if err != nil {
 			t = failedTest(TestBrant.String(), "%v", err)
 		}
-		t.Name = d.Predictors[k]
+		t.Name = predictors[k]
 		br.PerVariable = append(br.PerVariable, t)
 	}
 	x, err := waldStat(all, beta, V)
 	if err != nil {
-		br.Reason = "Brant test cannot be computed: " + err.Error()
-		return br
+		return err
 	}
 	br.Omnibus = chi2Test(TestBrant.String(), x, len(all))
-	br.beta, br.cov, br.predictors = beta, V, d.Predictors
-	br.OK = true
-	return br
+	return nil
 }
 
 // WolfeGould compares the multinomial log-likelihoods implied by stacked

@@ -48,10 +48,10 @@ type problem struct {
 	q       int
 	workers int
 
-	parCols  []int // predictor index of each parallel-type column
-	freeCols []int // per-equation columns: -1 = the constant, k >= 0 predictor k, -(2+d) = z of group d
-	freeOf   []int // predictor -> its per-equation column (or -1)
-	parOf    []int // predictor -> its parallel column (or -1)
+	parCols  []int    // predictor index of each parallel-type column
+	freeCols []column // per-equation columns: the constant, predictors, then the z of each group
+	freeOf   []int    // predictor -> its per-equation column (or -1)
+	parOf    []int    // predictor -> its parallel column (or -1)
 	pairs    [][2]int
 	prof     *profile  // optional timing of the cross-products
 	scratch  sync.Pool // *scratch, reused across evaluations
@@ -61,7 +61,7 @@ func newProblem(d *design, m Model, ly *layout, workers int) *problem {
 	q := ly.J - 1
 	p := &problem{d: d, model: m, ly: ly, q: q, workers: workers,
 		ker: kernel{cmp: m.Comparison, backward: m.Backward, link: m.Link, nEq: q}}
-	p.freeCols = []int{-1}
+	p.freeCols = []column{{kind: constantColumn}}
 	p.freeOf = make([]int, d.K)
 	p.parOf = make([]int, d.K)
 	for k, e := range m.Effects {
@@ -71,11 +71,11 @@ func newProblem(d *design, m Model, ly *layout, workers int) *problem {
 			p.parCols = append(p.parCols, k)
 		} else {
 			p.freeOf[k] = len(p.freeCols)
-			p.freeCols = append(p.freeCols, k)
+			p.freeCols = append(p.freeCols, column{kind: predictorColumn, index: k})
 		}
 	}
 	for g := range ly.groups {
-		p.freeCols = append(p.freeCols, -(2 + g))
+		p.freeCols = append(p.freeCols, column{kind: groupColumn, index: g})
 	}
 	for a := 0; a < q; a++ {
 		for b := a; b < q; b++ {
@@ -255,37 +255,57 @@ func (p *problem) newScratch() *scratch {
 	}
 }
 
+// block adds the sums of rows lo..hi-1 to a, in phases: the block's
+// columns, its linear predictors, the row kernels, then the score and
+// information pieces (cross-products of the columns weighted by the
+// kernels' derivatives). A row with a non-positive probability of its
+// observed category makes the whole evaluation bad.
 func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *scratch) {
-	d, q := p.d, p.q
-	kf, kp := len(p.freeCols), len(p.parCols)
 	rows := hi - lo
-	// Build the per-equation columns and the parallel columns of the block.
+	p.blockColumns(c, lo, rows, s)
+	p.blockLinear(c, lo, rows, s)
+	if !p.blockKernels(c, lo, rows, order, expected, a, s) {
+		a.bad = true
+		a.ll = math.Inf(-1)
+		return
+	}
+	if order < 1 {
+		return
+	}
+	p.blockScore(rows, a, s)
+	if order < 2 {
+		return
+	}
+	if p.prof != nil {
+		t0 := time.Now()
+		defer func() { p.prof.add(time.Since(t0)) }()
+	}
+	p.blockInformation(rows, a, s)
+}
+
+// blockColumns fills s.uf with the per-equation columns (rows x Kf) and
+// s.xp with the parallel columns (rows x Kp) of the block.
+func (p *problem) blockColumns(c *coefs, lo, rows int, s *scratch) {
+	d := p.d
+	kf, kp := len(p.freeCols), len(p.parCols)
 	for i := 0; i < rows; i++ {
 		xi := d.x[(lo+i)*d.K : (lo+i+1)*d.K]
 		u := s.uf[i*kf : (i+1)*kf]
 		for j, col := range p.freeCols {
-			switch {
-			case col == -1:
-				u[j] = 1
-			case col >= 0:
-				u[j] = xi[col]
-			default:
-				g := -(col + 2)
-				z := 0.0
-				for t, k := range p.ly.groups[g] {
-					z += xi[k] * c.gam[g][t]
-				}
-				u[j] = z
-			}
+			u[j] = col.value(xi, p.ly.groups, c.gam)
 		}
 		xr := s.xp[i*kp : (i+1)*kp]
 		for j, k := range p.parCols {
 			xr[j] = xi[k]
 		}
 	}
+}
+
+// blockLinear fills s.eta (rows x q) with Uf Bf + (Xp bp + offset) 1'.
+func (p *problem) blockLinear(c *coefs, lo, rows int, s *scratch) {
+	q := p.q
+	kf, kp := len(p.freeCols), len(p.parCols)
 	uf := blas64.General{Rows: rows, Cols: kf, Stride: kf, Data: s.uf[:rows*kf]}
-	xp := blas64.General{Rows: rows, Cols: kp, Stride: max(kp, 1), Data: s.xp[:rows*kp]}
-	// eta (rows x q) = Uf * Bf + (Xp bp) 1'
 	eta := blas64.General{Rows: rows, Cols: q, Stride: q, Data: s.eta[:rows*q]}
 	blas64.Gemm(blas.NoTrans, blas.NoTrans, 1, uf, blas64.General{Rows: kf, Cols: q, Stride: q, Data: c.bf}, 0, eta)
 	for i := 0; i < rows; i++ {
@@ -294,13 +314,23 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 		for j := range xr {
 			e += xr[j] * c.bp[j]
 		}
-		if d.off != nil {
-			e += d.off[lo+i]
+		if p.d.off != nil {
+			e += p.d.off[lo+i]
 		}
 		for m := 0; m < q; m++ {
 			s.eta[i*q+m] += e
 		}
 	}
+}
+
+// blockKernels evaluates the row kernel of every row: it adds the weighted
+// log-probabilities to a.ll, and keeps in s.tmp2 the weighted first
+// derivatives in L (rows x q, order >= 1) and in s.hb the weighted second
+// derivatives (rows x q x q, order >= 2; expected ones when asked). It
+// reports false when a row's observed category has a non-positive
+// probability.
+func (p *problem) blockKernels(c *coefs, lo, rows, order int, expected bool, a *acc, s *scratch) bool {
+	d, q := p.d, p.q
 	var g, h []float64
 	if order >= 1 {
 		g = s.g
@@ -308,7 +338,7 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 	if order >= 2 && !expected {
 		h = s.h
 	}
-	gs := s.tmp2[:rows*q] // w * g per row and equation
+	gs := s.tmp2[:rows*q]
 	for i := 0; i < rows; i++ {
 		r := lo + i
 		w := d.weight(r)
@@ -326,9 +356,7 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 		}
 		lp, ok := p.ker.eval(s.L, d.y[r], g, h)
 		if !ok {
-			a.bad = true
-			a.ll = math.Inf(-1)
-			return
+			return false
 		}
 		a.ll += w * lp
 		if order >= 1 {
@@ -350,10 +378,16 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 			}
 		}
 	}
-	if order < 1 {
-		return
-	}
-	// Score pieces: V (q x Kf) += G' Uf, Vp += Xp' (G 1).
+	return true
+}
+
+// blockScore adds the score pieces: V (q x Kf) += G' Uf and Vp += Xp' (G 1),
+// G the weighted first derivatives of the rows.
+func (p *problem) blockScore(rows int, a *acc, s *scratch) {
+	q := p.q
+	kf, kp := len(p.freeCols), len(p.parCols)
+	uf := blas64.General{Rows: rows, Cols: kf, Stride: kf, Data: s.uf[:rows*kf]}
+	gs := s.tmp2[:rows*q]
 	G := blas64.General{Rows: rows, Cols: q, Stride: q, Data: gs}
 	blas64.Gemm(blas.Trans, blas.NoTrans, 1, G, uf, 1, blas64.General{Rows: q, Cols: kf, Stride: kf, Data: a.V})
 	for i := 0; i < rows; i++ {
@@ -366,15 +400,18 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 			a.Vp[j] += sg * xr[j]
 		}
 	}
-	if order < 2 {
-		return
-	}
+}
+
+// blockInformation adds the information pieces: per-equation x
+// per-equation blocks for each pair of equations the comparison needs,
+// parallel x per-equation blocks weighted by sum_m H_ml, and the parallel x
+// parallel block weighted by sum_ml H_ml.
+func (p *problem) blockInformation(rows int, a *acc, s *scratch) {
+	q := p.q
+	kf, kp := len(p.freeCols), len(p.parCols)
+	uf := blas64.General{Rows: rows, Cols: kf, Stride: kf, Data: s.uf[:rows*kf]}
+	xp := blas64.General{Rows: rows, Cols: kp, Stride: max(kp, 1), Data: s.xp[:rows*kp]}
 	tmp := s.tmp
-	if p.prof != nil {
-		t0 := time.Now()
-		defer func() { p.prof.add(time.Since(t0)) }()
-	}
-	// Per-equation x per-equation blocks for each needed pair.
 	for pi, pr := range p.pairs {
 		m, l := pr[0], pr[1]
 		for i := 0; i < rows; i++ {
@@ -390,7 +427,6 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 	if kp == 0 {
 		return
 	}
-	// Parallel x per-equation blocks, weight sum_m H_ml.
 	for l := 0; l < q; l++ {
 		for i := 0; i < rows; i++ {
 			hb := s.hb[i*q*q : (i+1)*q*q]
@@ -406,7 +442,6 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 		}
 		weightedCross(a.R[l], xp, blas64.General{Rows: rows, Cols: kf, Stride: kf, Data: tmp[:rows*kf]})
 	}
-	// Parallel x parallel, weight sum_ml H_ml.
 	for i := 0; i < rows; i++ {
 		hb := s.hb[i*q*q : (i+1)*q*q]
 		wt := 0.0

@@ -291,11 +291,11 @@ func (p *problem) linearRow(c *coefs, xi []float64, off float64, L []float64) {
 		L[m] = c.tau[m] - e
 	}
 	for a, col := range p.freeCols {
-		if col < 0 {
-			continue
+		if col.kind != predictorColumn {
+			continue // the constant and group columns have no slopes
 		}
 		for m := 0; m < q; m++ {
-			L[m] -= xi[col] * c.bf[a*q+m]
+			L[m] -= xi[col.index] * c.bf[a*q+m]
 		}
 	}
 }

@@ -224,12 +224,14 @@ func ridgeRefs(res *Result, ly *layout, st *newtonState, sd []float64) []int {
 // the maximum is not a regular one in that normalization either. The state
 // returned is the one the result describes.
 func (a *auxiliary) normalizedFit(src *source, d *Data, m Model, ly *layout, pr *problem, res *Result, st *newtonState, refs []int, opt Options) (*Result, *newtonState) {
+	// Phase 1: the maximum in the other normalization.
 	rm := newRankMap(ly, a.pLy, m.Effects, refs)
 	pp := newProblem(d.design(), a.partM, a.pLy, opt.Workers)
 	ast := rm.newton(pp, rm.fromStandard(st.theta), opt.MaxIter)
 	if !ast.converged || ast.ll < st.ll-sameLL {
 		return nil, nil
 	}
+	// Phase 2: representable after all: the ordinary fit from there.
 	representable := true
 	for g, r := range refs {
 		if r > 0 && math.Abs(rm.phi(ast.theta, g)[0]) < 1.0/(phiLarge*phiLarge) {
@@ -244,22 +246,14 @@ func (a *auxiliary) normalizedFit(src *source, d *Data, m Model, ly *layout, pr 
 			}
 		}
 	}
-	P := len(ly.params)
-	q := d.J - 1
+	// Phase 3: the covariance in that normalization.
 	hth := rm.h(ast.theta)
-	H := ast.hess
-	if opt.Covariance == Expected {
-		_, H = rm.chain(ast.theta, make([]float64, len(hth)), pp.expectedHessian(hth))
-	}
-	info := negated(H)
-	cond, _, pd := scaledCondition(info, P)
-	if !pd || cond > conditionLimit {
+	cov, cond, ok := rm.covariance(pp, &ast, hth, opt)
+	if !ok {
 		return nil, nil
 	}
-	cov, err := invertSym(info, P)
-	if err != nil {
-		return nil, nil
-	}
+	// Phase 4: the result: the point reached, then the groups that the
+	// normalization phi_1 = 1 cannot represent.
 	r := *res
 	r.Iterations = st.iters + ast.iters
 	r.Reason = "converged"
@@ -270,15 +264,48 @@ func (a *auxiliary) normalizedFit(src *source, d *Data, m Model, ly *layout, pr 
 	r.Decrement = ast.decrement
 	r.Condition = cond
 	r.MinFittedProb, r.NegativeRows = pp.fittedCheck(hth)
+	r.setSlopes(m, ly.K, a.pLy, hth)
+	drop, why := r.setRidgeGroups(d.Predictors, ly, a.pLy, rm, ast.theta, hth, cov, refs)
+	r.settleNotIdentified(ast.ll, cov, drop, covarianceType(opt), why, "gamma is reported as the equation-1 slopes (zero) and phi as NaN")
+	return &r, &ast
+}
+
+// covariance is the inverse information at the maximum ast of this map's
+// normalization (hth its slopes in the partial model's parameters), with
+// the information's scaled condition; ok is false when the information is
+// singular or ill-conditioned there.
+func (rm rankMap) covariance(pp *problem, ast *newtonState, hth []float64, opt Options) (cov []float64, cond float64, ok bool) {
+	P := len(ast.theta)
+	H := ast.hess
+	if opt.Covariance == Expected {
+		_, H = rm.chain(ast.theta, make([]float64, len(hth)), pp.expectedHessian(hth))
+	}
+	info := negated(H)
+	cond, _, pd := scaledCondition(info, P)
+	if !pd || cond > conditionLimit {
+		return nil, cond, false
+	}
+	cov, err := invertSym(info, P)
+	if err != nil {
+		return nil, cond, false
+	}
+	return cov, cond, true
+}
+
+// setSlopes sets the cutpoints and the effects matrix from hth, the
+// parameters of the partial model (layout pLy) of model m with K
+// predictors.
+func (r *Result) setSlopes(m Model, K int, pLy *layout, hth []float64) {
+	q := pLy.J - 1
 	r.Cutpoints = make([]float64, q)
 	for j := range r.Cutpoints {
-		r.Cutpoints[j] = hth[a.pLy.cut[j]]
+		r.Cutpoints[j] = hth[pLy.cut[j]]
 	}
 	r.Effects = make([][]float64, q)
 	for j := range r.Effects {
-		r.Effects[j] = make([]float64, ly.K)
+		r.Effects[j] = make([]float64, K)
 		for k, e := range m.Effects {
-			ns := a.pLy.slope[k]
+			ns := pLy.slope[k]
 			if e == Parallel {
 				r.Effects[j][k] = hth[ns]
 			} else {
@@ -286,16 +313,23 @@ func (a *auxiliary) normalizedFit(src *source, d *Data, m Model, ly *layout, pr 
 			}
 		}
 	}
-	// Parameters of the unrepresentable groups: phi NaN, gamma = the
-	// equation-1 slopes, no standard errors.
-	r.Estimates = append([]float64(nil), ast.theta...)
-	drop := make([]bool, P)
+}
+
+// setRidgeGroups sets the estimates and phi of every constraint group at
+// the maximum theta of the normalization refs: groups normalized by
+// equation 1 keep theirs; for the others phi is NaN, gamma holds the
+// equation-1 slopes (from hth) and PhiOther phi and gamma in their own
+// normalization with standard errors from cov. It returns the parameters
+// without standard errors and the reason for each such group.
+func (r *Result) setRidgeGroups(predictors []string, ly, pLy *layout, rm rankMap, theta, hth, cov []float64, refs []int) (drop []bool, why []string) {
+	P, q := len(theta), ly.J-1
+	r.Estimates = append([]float64(nil), theta...)
+	drop = make([]bool, P)
 	r.Phi = nil
 	r.PhiOther = nil
-	var why []string
 	for g, ks := range ly.groups {
 		if refs[g] == 0 {
-			r.Phi = append(r.Phi, rm.phi(ast.theta, g))
+			r.Phi = append(r.Phi, rm.phi(theta, g))
 			continue
 		}
 		ph := make([]float64, q)
@@ -305,7 +339,7 @@ func (a *auxiliary) normalizedFit(src *source, d *Data, m Model, ly *layout, pr 
 			r.Estimates[i], ph[j], drop[i] = math.NaN(), math.NaN(), true
 		}
 		r.Phi = append(r.Phi, ph)
-		alt := PhiNormalization{Group: ly.gnames[g], Ref: refs[g] + 1, Phi: rm.phi(ast.theta, g), PhiSE: make([]float64, q)}
+		alt := PhiNormalization{Group: ly.gnames[g], Ref: refs[g] + 1, Phi: rm.phi(theta, g), PhiSE: make([]float64, q)}
 		for j := 0; j < q; j++ {
 			if s := rm.slot(g, j); s >= 0 {
 				alt.PhiSE[j] = math.Sqrt(cov[s*P+s])
@@ -313,17 +347,16 @@ func (a *auxiliary) normalizedFit(src *source, d *Data, m Model, ly *layout, pr 
 		}
 		for _, k := range ks {
 			s := ly.slope[k]
-			r.Estimates[s] = hth[a.pLy.slope[k]]
+			r.Estimates[s] = hth[pLy.slope[k]]
 			drop[s] = true
-			alt.Predictors = append(alt.Predictors, d.Predictors[k])
-			alt.Gamma = append(alt.Gamma, ast.theta[s])
+			alt.Predictors = append(alt.Predictors, predictors[k])
+			alt.Gamma = append(alt.Gamma, theta[s])
 			alt.GammaSE = append(alt.GammaSE, math.Sqrt(cov[s*P+s]))
 		}
 		r.PhiOther = append(r.PhiOther, alt)
 		why = append(why, fmt.Sprintf("phi %s is not identified in the normalization phi_1 = 1: at the maximum its slopes in equation 1 vanish (phi_1 = %.2g when phi_%d = 1), so phi_m = b_m / b_1 is unbounded; PhiOther gives phi normalized by equation %d", groupLabel(ly, g), alt.Phi[0], refs[g]+1, refs[g]+1))
 	}
-	r.settleNotIdentified(ast.ll, cov, drop, covarianceType(opt), why, "gamma is reported as the equation-1 slopes (zero) and phi as NaN")
-	return &r, &ast
+	return drop, why
 }
 
 // newton maximizes the log-likelihood in this map's normalization, with

@@ -115,17 +115,7 @@ func (pr *problem) rowColumns(theta []float64, x []float64) []float64 {
 	c := pr.coefs(theta)
 	u := make([]float64, len(pr.freeCols))
 	for j, col := range pr.freeCols {
-		switch {
-		case col == -1:
-			u[j] = 1
-		case col >= 0:
-			u[j] = x[col]
-		default:
-			g := -(col + 2)
-			for t, k := range pr.ly.groups[g] {
-				u[j] += x[k] * c.gam[g][t]
-			}
-		}
+		u[j] = col.value(x, pr.ly.groups, c.gam)
 	}
 	return u
 }
