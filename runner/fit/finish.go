@@ -389,12 +389,7 @@ func scaledCondition(A []float64, P int) (float64, []float64, bool) {
 			s[i] = 1 / math.Sqrt(v)
 		}
 	}
-	sym := mat.NewSymDense(P, nil)
-	for i := 0; i < P; i++ {
-		for j := i; j < P; j++ {
-			sym.SetSym(i, j, A[i*P+j]*s[i]*s[j])
-		}
-	}
+	sym := scaledSym(A, P, s)
 	var es mat.EigenSym
 	if !es.Factorize(sym, true) {
 		return math.Inf(1), nil, false
@@ -419,6 +414,18 @@ func scaledCondition(A []float64, P int) (float64, []float64, bool) {
 	return maxV / vals[minI], vec, true
 }
 
+// scaledSym is the symmetric matrix D A D, D = diag(s), from the upper
+// triangle of A (P x P, row-major).
+func scaledSym(A []float64, P int, s []float64) *mat.SymDense {
+	sym := mat.NewSymDense(P, nil)
+	for i := 0; i < P; i++ {
+		for j := i; j < P; j++ {
+			sym.SetSym(i, j, A[i*P+j]*s[i]*s[j])
+		}
+	}
+	return sym
+}
+
 // invertSym inverts a positive definite matrix on the unit-diagonal scale,
 // so that parameters in very different units lose no accuracy.
 func invertSym(A []float64, P int) ([]float64, error) {
@@ -430,12 +437,7 @@ func invertSym(A []float64, P int) ([]float64, error) {
 		}
 		s[i] = 1 / math.Sqrt(v)
 	}
-	sym := mat.NewSymDense(P, nil)
-	for i := 0; i < P; i++ {
-		for j := i; j < P; j++ {
-			sym.SetSym(i, j, A[i*P+j]*s[i]*s[j])
-		}
-	}
+	sym := scaledSym(A, P, s)
 	var ch mat.Cholesky
 	if !ch.Factorize(sym) {
 		return nil, errSingular
