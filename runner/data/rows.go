@@ -7,7 +7,11 @@ import (
 	"strings"
 )
 
-// rows reads the data rows and builds the data set.
+// rows reads the data rows and builds the data set, in phases: the
+// lookups the rows need, then row by row the subset conditions, the cells,
+// and the keeping of a complete row (or the counting of an incomplete
+// one), then the counts of dropped rows, and last the outcome's
+// categories and their counts.
 func (r *reader) rows() (*Dataset, error) {
 	opt := &r.opt
 	d := &Dataset{
@@ -19,34 +23,7 @@ func (r *reader) rows() (*Dataset, error) {
 	if d.Predictors == nil {
 		d.Predictors = []string{}
 	}
-	labels := map[string]int{}
-	for i, l := range opt.Categories {
-		labels[l] = i
-	}
-	var codes []int64 // outcome codes of kept rows, when no labels are declared
-	drops := make([]int, len(r.cols))
-	// the used column of each subset condition, the rows each drops, and
-	// the level index of each categorical predictor
-	condCol := make([]int, len(opt.Keep))
-	for i, k := range opt.Keep {
-		condCol[i] = slices.IndexFunc(r.cols, func(c usedCol) bool { return c.name == k.Column })
-	}
-	subsetDrops := make([]int, len(opt.Keep))
-	levelIndex := map[string]map[string]int{}
-	levelSeen := map[string][]float64{}
-	for col, lv := range opt.PredictorLevels {
-		levelIndex[col] = map[string]int{}
-		for i, l := range lv {
-			levelIndex[col][l] = i
-		}
-		levelSeen[col] = make([]float64, len(lv))
-	}
-	zeroWeight := 0              // rows with frequency weight 0 stand for no observation
-	patterns := map[string]int{} // which used columns a row misses: 'x' missing, '.' present
-	pat := make([]byte, len(r.cols))
-	catMiss := map[string][]int{} // per outcome value of an incomplete row: rows missing each used column
-	catIncomplete := map[string]int{}
-	xs := make([]float64, d.K)
+	t := r.newRowTally(d.K)
 	for {
 		rec, err := r.cr.Read()
 		if err == io.EOF {
@@ -56,142 +33,256 @@ func (r *reader) rows() (*Dataset, error) {
 			return nil, r.csvErr(err, rec)
 		}
 		d.RowsRead++
-		out := -1
-		for i, k := range opt.Keep {
-			c := r.cols[condCol[i]]
-			cell := strings.TrimSpace(rec[c.index])
-			ok, msg := k.keeps(cell, r.missing[cell])
-			if msg != "" {
-				line, _ := r.cr.FieldPos(c.index)
-				return nil, r.fail(line, c.name, "%s", msg)
-			}
-			if !ok {
-				out = i
-				break
-			}
-		}
-		if out >= 0 {
-			subsetDrops[out]++
+		if out, err := r.outsideSubset(t, rec); err != nil {
+			return nil, err
+		} else if out >= 0 {
+			t.subsetDrops[out]++
 			continue
 		}
-		miss := -1
-		for i := range pat {
-			pat[i] = '.'
+		row, err := r.parseRow(t, rec)
+		if err != nil {
+			return nil, err
 		}
-		y, code, w, off, cl := 0, int64(0), 1.0, 0.0, ""
-		outLabel := "" // the outcome value, when present
-		for ci, c := range r.cols {
-			if c.role == roleSubset {
-				continue
-			}
-			cell := strings.TrimSpace(rec[c.index])
-			line, _ := r.cr.FieldPos(c.index)
-			if r.missingIn(c.name, cell) {
-				if opt.Refuse {
-					return nil, r.fail(line, c.name, "missing value (%s) where missing values are refused", describeMissing(cell))
-				}
-				if miss < 0 {
-					miss = ci
-				}
-				pat[ci] = 'x'
-				continue
-			}
-			var msg string
-			switch c.role {
-			case roleOutcome:
-				if len(opt.Categories) > 0 {
-					i, ok := labels[cell]
-					if !ok {
-						msg = "value " + quoteCell(cell) + " is not one of the declared categories: " + quoteList(opt.Categories)
-					}
-					y = i
-					outLabel = cell
-				} else {
-					code, msg = parseCode(cell)
-					outLabel = strconv.FormatInt(code, 10)
-				}
-			case rolePredictor:
-				if idx, cat := levelIndex[c.name]; cat {
-					l, ok := idx[cell]
-					if !ok {
-						msg = "value " + quoteCell(cell) + " is not one of the declared levels of this categorical predictor: " + quoteList(opt.PredictorLevels[c.name]) + " (add it to the levels, or list it among the missing-value markers)"
-					}
-					xs[c.pos] = float64(l)
-				} else if xs[c.pos], msg = parseNumber(cell); strings.HasSuffix(msg, " is not a number") && !isNumberLike(cell) {
-					msg += "; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)"
-				}
-			case roleWeights:
-				w, msg = parseNumber(cell)
-				if msg == "" && w < 0 {
-					msg = "weight " + quoteCell(cell) + " is negative (frequency weights must be zero or more)"
-				}
-			case roleOffset:
-				off, msg = parseNumber(cell)
-			case roleCluster:
-				cl = cell
-			}
-			if msg != "" {
-				return nil, r.fail(line, c.name, "%s", msg)
-			}
-		}
-		if miss >= 0 {
-			drops[miss]++
-			patterns[string(pat)]++
-			if pat[0] != 'x' {
-				cm := catMiss[outLabel]
-				if cm == nil {
-					cm = make([]int, len(r.cols))
-					catMiss[outLabel] = cm
-				}
-				for ci := range pat {
-					if pat[ci] == 'x' {
-						cm[ci]++
-					}
-				}
-				catIncomplete[outLabel]++
-			}
-			continue
-		}
-		if w == 0 {
-			zeroWeight++
-			continue
-		}
-		line, _ := r.cr.FieldPos(0)
-		for _, c := range r.cols {
-			if c.role == rolePredictor && levelSeen[c.name] != nil {
-				levelSeen[c.name][int(xs[c.pos])] += w
-			}
-		}
-		d.Lines = append(d.Lines, line)
-		d.Y = append(d.Y, y)
-		codes = append(codes, code)
-		d.X = append(d.X, xs...)
-		if opt.Weights != "" {
-			d.Weights = append(d.Weights, w)
-		}
-		if opt.Offset != "" {
-			d.Offset = append(d.Offset, off)
-		}
-		if opt.Cluster != "" {
-			d.Cluster = append(d.Cluster, cl)
+		switch {
+		case row.miss >= 0:
+			t.countIncomplete(row)
+		case row.w == 0:
+			t.zeroWeight++
+		default:
+			r.keepRow(t, d, row)
 		}
 	}
+	if err := r.countDrops(t, d); err != nil {
+		return nil, err
+	}
+	if d.X == nil {
+		d.X = []float64{}
+	}
+	if len(opt.Categories) > 0 {
+		d.Categories = slices.Clone(opt.Categories)
+	} else {
+		d.Categories = codeCategories(t.codes, d.Y)
+	}
+	if err := r.tally(d); err != nil {
+		return nil, err
+	}
+	d.Missing.byCategory(r.cols, d, t.catMiss, t.catIncomplete)
+	return d, nil
+}
+
+// rowTally holds what reading the rows needs and counts: lookups built
+// once, the tallies of dropped rows, and the current row's scratch.
+type rowTally struct {
+	labels        map[string]int            // declared outcome label -> category
+	condCol       []int                     // used column of each subset condition
+	levelIndex    map[string]map[string]int // categorical predictor -> level -> index
+	levelSeen     map[string][]float64      // categorical predictor -> weight seen per level
+	codes         []int64                   // outcome codes of kept rows, when no labels are declared
+	drops         []int                     // rows dropped for a missing value, by first missing column
+	subsetDrops   []int                     // rows outside the subset, by first failed condition
+	zeroWeight    int                       // rows with frequency weight 0 stand for no observation
+	patterns      map[string]int            // which used columns a row misses: 'x' missing, '.' present
+	catMiss       map[string][]int          // per outcome value of an incomplete row: rows missing each used column
+	catIncomplete map[string]int            // per outcome value: incomplete rows
+	pat           []byte                    // the current row's pattern
+	xs            []float64                 // the current row's predictor values
+}
+
+// cells is one parsed row.
+type cells struct {
+	miss     int // first used column with a missing value (-1: none)
+	y        int
+	code     int64
+	outLabel string // the outcome value, when present
+	w        float64
+	off      float64
+	cl       string
+}
+
+func (r *reader) newRowTally(K int) *rowTally {
+	opt := &r.opt
+	t := &rowTally{
+		labels:        map[string]int{},
+		condCol:       make([]int, len(opt.Keep)),
+		levelIndex:    map[string]map[string]int{},
+		levelSeen:     map[string][]float64{},
+		drops:         make([]int, len(r.cols)),
+		subsetDrops:   make([]int, len(opt.Keep)),
+		patterns:      map[string]int{},
+		catMiss:       map[string][]int{},
+		catIncomplete: map[string]int{},
+		pat:           make([]byte, len(r.cols)),
+		xs:            make([]float64, K),
+	}
+	for i, l := range opt.Categories {
+		t.labels[l] = i
+	}
+	for i, k := range opt.Keep {
+		t.condCol[i] = slices.IndexFunc(r.cols, func(c usedCol) bool { return c.name == k.Column })
+	}
+	for col, lv := range opt.PredictorLevels {
+		t.levelIndex[col] = map[string]int{}
+		for i, l := range lv {
+			t.levelIndex[col][l] = i
+		}
+		t.levelSeen[col] = make([]float64, len(lv))
+	}
+	return t
+}
+
+// outsideSubset returns the first subset condition the row fails (-1: it
+// is inside the subset).
+func (r *reader) outsideSubset(t *rowTally, rec []string) (int, error) {
+	for i, k := range r.opt.Keep {
+		c := r.cols[t.condCol[i]]
+		cell := strings.TrimSpace(rec[c.index])
+		ok, msg := k.keeps(cell, r.missing[cell])
+		if msg != "" {
+			line, _ := r.cr.FieldPos(c.index)
+			return -1, r.fail(line, c.name, "%s", msg)
+		}
+		if !ok {
+			return i, nil
+		}
+	}
+	return -1, nil
+}
+
+// parseRow reads the used cells of a row: the outcome, the predictors
+// (into t.xs), the weight, offset and cluster; it marks missing cells in
+// t.pat. A cell that is neither missing nor valid is an error naming its
+// line and column.
+func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
+	opt := &r.opt
+	for i := range t.pat {
+		t.pat[i] = '.'
+	}
+	row := cells{miss: -1, w: 1}
+	for ci, c := range r.cols {
+		if c.role == roleSubset {
+			continue
+		}
+		cell := strings.TrimSpace(rec[c.index])
+		line, _ := r.cr.FieldPos(c.index)
+		if r.missingIn(c.name, cell) {
+			if opt.Refuse {
+				return row, r.fail(line, c.name, "missing value (%s) where missing values are refused", describeMissing(cell))
+			}
+			if row.miss < 0 {
+				row.miss = ci
+			}
+			t.pat[ci] = 'x'
+			continue
+		}
+		var msg string
+		switch c.role {
+		case roleOutcome:
+			if len(opt.Categories) > 0 {
+				i, ok := t.labels[cell]
+				if !ok {
+					msg = "value " + quoteCell(cell) + " is not one of the declared categories: " + quoteList(opt.Categories)
+				}
+				row.y = i
+				row.outLabel = cell
+			} else {
+				row.code, msg = parseCode(cell)
+				row.outLabel = strconv.FormatInt(row.code, 10)
+			}
+		case rolePredictor:
+			if idx, cat := t.levelIndex[c.name]; cat {
+				l, ok := idx[cell]
+				if !ok {
+					msg = "value " + quoteCell(cell) + " is not one of the declared levels of this categorical predictor: " + quoteList(opt.PredictorLevels[c.name]) + " (add it to the levels, or list it among the missing-value markers)"
+				}
+				t.xs[c.pos] = float64(l)
+			} else if t.xs[c.pos], msg = parseNumber(cell); strings.HasSuffix(msg, " is not a number") && !isNumberLike(cell) {
+				msg += "; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)"
+			}
+		case roleWeights:
+			row.w, msg = parseNumber(cell)
+			if msg == "" && row.w < 0 {
+				msg = "weight " + quoteCell(cell) + " is negative (frequency weights must be zero or more)"
+			}
+		case roleOffset:
+			row.off, msg = parseNumber(cell)
+		case roleCluster:
+			row.cl = cell
+		}
+		if msg != "" {
+			return row, r.fail(line, c.name, "%s", msg)
+		}
+	}
+	return row, nil
+}
+
+// countIncomplete counts a row with a missing value: under its first
+// missing column, under its pattern, and (when its outcome is present)
+// under its outcome value for each column it misses.
+func (t *rowTally) countIncomplete(row cells) {
+	t.drops[row.miss]++
+	t.patterns[string(t.pat)]++
+	if t.pat[0] == 'x' {
+		return
+	}
+	cm := t.catMiss[row.outLabel]
+	if cm == nil {
+		cm = make([]int, len(t.pat))
+		t.catMiss[row.outLabel] = cm
+	}
+	for ci := range t.pat {
+		if t.pat[ci] == 'x' {
+			cm[ci]++
+		}
+	}
+	t.catIncomplete[row.outLabel]++
+}
+
+// keepRow appends a complete row with a positive weight to the data set.
+func (r *reader) keepRow(t *rowTally, d *Dataset, row cells) {
+	opt := &r.opt
+	line, _ := r.cr.FieldPos(0)
+	for _, c := range r.cols {
+		if c.role == rolePredictor && t.levelSeen[c.name] != nil {
+			t.levelSeen[c.name][int(t.xs[c.pos])] += row.w
+		}
+	}
+	d.Lines = append(d.Lines, line)
+	d.Y = append(d.Y, row.y)
+	t.codes = append(t.codes, row.code)
+	d.X = append(d.X, t.xs...)
+	if opt.Weights != "" {
+		d.Weights = append(d.Weights, row.w)
+	}
+	if opt.Offset != "" {
+		d.Offset = append(d.Offset, row.off)
+	}
+	if opt.Cluster != "" {
+		d.Cluster = append(d.Cluster, row.cl)
+	}
+}
+
+// countDrops records the rows dropped (missing values, zero weight,
+// outside the subset), the missing-value patterns and the declared levels
+// of categorical predictors that no kept row has; it is an error when no
+// row is kept.
+func (r *reader) countDrops(t *rowTally, d *Dataset) error {
+	opt := &r.opt
 	if d.RowsRead == 0 {
-		return nil, r.fail(0, "", "no data rows after the header")
+		return r.fail(0, "", "no data rows after the header")
 	}
 	d.N = len(d.Y)
-	for ci, n := range drops {
+	for ci, n := range t.drops {
 		if n > 0 {
 			d.Dropped = append(d.Dropped, DropCount{Column: r.cols[ci].name, Rows: n})
 			d.RowsDropped += n
 		}
 	}
-	d.Missing = missingPatterns(r.cols, patterns)
-	if zeroWeight > 0 {
-		d.Dropped = append(d.Dropped, DropCount{Column: opt.Weights + " = 0", Rows: zeroWeight})
-		d.RowsDropped += zeroWeight
+	d.Missing = missingPatterns(r.cols, t.patterns)
+	if t.zeroWeight > 0 {
+		d.Dropped = append(d.Dropped, DropCount{Column: opt.Weights + " = 0", Rows: t.zeroWeight})
+		d.RowsDropped += t.zeroWeight
 	}
-	for i, n := range subsetDrops {
+	for i, n := range t.subsetDrops {
 		if n > 0 {
 			d.Dropped = append(d.Dropped, DropCount{Column: "outside the subset " + opt.Keep[i].String(), Rows: n, Subset: true})
 			d.RowsDropped += n
@@ -200,15 +291,15 @@ func (r *reader) rows() (*Dataset, error) {
 	}
 	if d.N == 0 && d.RowsOutside == d.RowsRead {
 		first := ""
-		for i, n := range subsetDrops {
+		for i, n := range t.subsetDrops {
 			if n > 0 && first == "" {
 				first = opt.Keep[i].Column
 			}
 		}
-		return nil, r.fail(0, first, "the subset keeps no rows: all %d data rows fail its conditions (%s)", d.RowsRead, dropList(d.Dropped))
+		return r.fail(0, first, "the subset keeps no rows: all %d data rows fail its conditions (%s)", d.RowsRead, dropList(d.Dropped))
 	}
 	for _, col := range opt.Predictors {
-		if seen := levelSeen[col]; seen != nil {
+		if seen := t.levelSeen[col]; seen != nil {
 			for l, c := range seen {
 				if c == 0 {
 					d.UnobservedLevels = append(d.UnobservedLevels, LevelRef{Column: col, Level: opt.PredictorLevels[col][l]})
@@ -221,24 +312,12 @@ func (r *reader) rows() (*Dataset, error) {
 		if d.RowsOutside > 0 {
 			why = "missing values or the subset"
 		}
-		if zeroWeight > 0 {
+		if t.zeroWeight > 0 {
 			why = "missing values or zero weight"
 		}
-		return nil, r.fail(0, "", "all %d data rows were dropped for %s (%s)", d.RowsRead, why, dropList(d.Dropped))
+		return r.fail(0, "", "all %d data rows were dropped for %s (%s)", d.RowsRead, why, dropList(d.Dropped))
 	}
-	if d.X == nil {
-		d.X = []float64{}
-	}
-	if len(opt.Categories) > 0 {
-		d.Categories = slices.Clone(opt.Categories)
-	} else {
-		d.Categories = codeCategories(codes, d.Y)
-	}
-	if err := r.tally(d); err != nil {
-		return nil, err
-	}
-	d.Missing.byCategory(r.cols, d, catMiss, catIncomplete)
-	return d, nil
+	return nil
 }
 
 // byCategory fills the missingness by outcome category: the kept rows of
