@@ -122,110 +122,163 @@ func parseFlags(fs *flag.FlagSet, args []string) (bool, int) {
 	return false, 0
 }
 
+// fitFlags are the flags of `ordplan fit`.
+type fitFlags struct {
+	dataFile, outcome, categories, predictors, direction *string
+	nonparallel, constrained, weights, weightKind        *string
+	cluster, offset, missing, baseline, partitions       *string
+	allFree, stereotype, asJSON                          *bool
+	level                                                *float64
+	approach                                             fit.Comparison
+	link                                                 fit.Link
+	covariance                                           fit.Covariance
+	queue                                                *queueFlags
+}
+
+// cmdFit fits one model from the command line, in phases: the flags, their
+// checks, the model they describe, the fit (here or over partitions), and
+// the table or JSON it prints.
 func cmdFit(args []string, stdout, stderr io.Writer) int {
 	fs := newFlags("fit", stderr)
-	var (
-		dataFile    = fs.String("data", "", "CSV file with a header line (required)")
-		outcome     = fs.String("outcome", "", "outcome column (required)")
-		categories  = fs.String("categories", "", "the outcome's category labels in order, lowest first (default: integer codes sorted)")
-		predictors  = fs.String("predictors", "", "predictor terms, comma separated: columns, or the compact forms of categorical columns, transformations and interactions (see below)")
-		approach    = fit.Cumulative
-		direction   = fs.String("direction", "forward", "stage direction: forward or backward")
-		link        = fit.Logit
-		covariance  = fit.Observed
-		nonparallel = fs.String("nonparallel", "", "predictors whose slopes vary freely across equations")
-		allFree     = fs.Bool("all-nonparallel", false, "make every predictor nonparallel")
-		constrained = fs.String("constrained", "", "predictors whose slopes vary by a common factor: a,b or name:a,b;other:c")
-		stereotype  = fs.Bool("stereotype", false, "adjacent model with every predictor in one constrained group")
-		weights     = fs.String("weights", "", "column of weights (frequency weights unless --weight-kind sampling)")
-		weightKind  = fs.String("weight-kind", "frequency", "frequency or sampling weights; sampling weights imply sandwich errors")
-		cluster     = fs.String("cluster", "", "column of cluster ids, for --covariance clustered")
-		offset      = fs.String("offset", "", "column added to x'b in every equation")
-		missing     = fs.String("missing", "drop", "rows with a missing value: drop (counted) or refuse")
-		baseline    = fs.String("baseline", "", "also show an adjacent nonparallel logit as baseline-category logits against this category")
-		level       = fs.Float64("confidence-level", 0.95, "confidence level of the intervals")
-		asJSON      = fs.Bool("json", false, "print one JSON object instead of the table")
-		qf          = addQueueFlags(fs, "with --partitions: the NATS JetStream server whose workers hold the partitions", true)
-		queueURL    = qf.url
-		partitions  = fs.String("partitions", "", "fit one model over these CSV files (same columns) through --queue workers, for data too large for one machine")
-	)
-	fs.TextVar(&approach, "approach", fit.Cumulative, "how categories are compared: "+fit.ComparisonWords.OrList())
-	fs.TextVar(&link, "link", fit.Logit, "link: "+fit.LinkWords.OrList())
-	fs.TextVar(&covariance, "covariance", fit.Observed, "standard errors: observed (information), expected (information), sandwich (HC1), sandwich_plain (HC0) or clustered (CR1)")
+	f := defineFitFlags(fs)
 	if stop, code := parseFlags(fs, args); stop {
 		return code
 	}
-	if fs.NArg() > 0 {
-		fmt.Fprintf(stderr, "ordplan fit: unexpected argument %q\n", fs.Arg(0))
+	if msg := f.usageProblem(fs); msg != "" {
+		fmt.Fprintf(stderr, "ordplan fit: %s\n", msg)
 		return exitUsage
 	}
-	for _, req := range []struct{ name, v string }{{"data", *dataFile + *partitions}, {"outcome", *outcome}} {
-		if req.v == "" {
-			fmt.Fprintf(stderr, "ordplan fit: --%s is required\n", req.name)
-			return exitUsage
-		}
-	}
-	if *missing != "drop" && *missing != "refuse" {
-		fmt.Fprintf(stderr, "ordplan fit: --missing must be drop or refuse, not %q\n", *missing)
-		return exitUsage
-	}
-	if *weightKind != "frequency" && *weightKind != "sampling" {
-		fmt.Fprintf(stderr, "ordplan fit: --weight-kind must be frequency or sampling, not %q\n", *weightKind)
-		return exitUsage
-	}
-	if *direction != "forward" && *direction != "backward" {
-		fmt.Fprintf(stderr, "ordplan fit: --direction must be forward or backward, not %q\n", *direction)
-		return exitUsage
-	}
-	dspec, err := runner.ParseCompactTerms(*predictors)
+	s, err := f.single()
 	if err != nil {
-		return fail(stderr, fmt.Errorf("--predictors: %w", err))
+		return fail(stderr, err)
 	}
-	var termNames []string
-	for _, t := range dspec.Terms {
-		termNames = append(termNames, t.Name)
-	}
-	s := runner.SingleFit{DataFile: *dataFile, Outcome: *outcome, Categories: runner.SplitList(*categories),
-		Predictors: termNames, Design: &dspec, Approach: approach, Backward: *direction == "backward",
-		Link: link, Nonparallel: runner.SplitList(*nonparallel), Weights: *weights, Offset: *offset,
-		Refuse: *missing == "refuse", Covariance: covariance, Cluster: *cluster, Sampling: *weightKind == "sampling"}
-	if *allFree {
-		s.Nonparallel = s.Predictors
-	}
-	groups, err := runner.ParseGroups(*constrained)
-	if err != nil {
-		return fail(stderr, fmt.Errorf("--constrained: %w", err))
-	}
-	s.Groups = groups
-	if *stereotype {
-		if len(groups) > 0 || len(s.Nonparallel) > 0 {
-			return fail(stderr, errors.New("--stereotype puts every predictor in one constrained group: do not combine it with --constrained or --nonparallel"))
-		}
-		s.Groups = []runner.Group{{Predictors: s.Predictors}}
-	}
-	if *partitions != "" || *queueURL != "" {
-		return fitPartitioned(s, qf, runner.SplitList(*partitions), *asJSON, *level, stdout, stderr)
+	if *f.partitions != "" || *f.queue.url != "" {
+		return fitPartitioned(s, f.queue, runner.SplitList(*f.partitions), *f.asJSON, *f.level, stdout, stderr)
 	}
 	res, ds, err := runner.FitOne(s)
 	if err != nil {
 		return fail(stderr, err)
 	}
-	var base *fit.Baseline
-	if *baseline != "" {
-		ref := -1
-		for i, l := range res.Categories {
-			if l == *baseline {
-				ref = i
-			}
-		}
-		if ref < 0 {
-			return fail(stderr, fmt.Errorf("--baseline: %q is not a category of %s (%s)", *baseline, *outcome, strings.Join(res.Categories, ", ")))
-		}
-		if base, err = res.Baseline(ref); err != nil {
-			return fail(stderr, err)
+	base, err := f.baselineOf(res)
+	if err != nil {
+		return fail(stderr, err)
+	}
+	if err := f.print(stdout, res, ds, base); err != nil {
+		return fail(stderr, err)
+	}
+	if !res.OK() {
+		return exitFail
+	}
+	return exitOK
+}
+
+// defineFitFlags declares the flags of `ordplan fit` on fs.
+func defineFitFlags(fs *flag.FlagSet) *fitFlags {
+	f := &fitFlags{
+		dataFile:    fs.String("data", "", "CSV file with a header line (required)"),
+		outcome:     fs.String("outcome", "", "outcome column (required)"),
+		categories:  fs.String("categories", "", "the outcome's category labels in order, lowest first (default: integer codes sorted)"),
+		predictors:  fs.String("predictors", "", "predictor terms, comma separated: columns, or the compact forms of categorical columns, transformations and interactions (see below)"),
+		approach:    fit.Cumulative,
+		direction:   fs.String("direction", "forward", "stage direction: forward or backward"),
+		link:        fit.Logit,
+		covariance:  fit.Observed,
+		nonparallel: fs.String("nonparallel", "", "predictors whose slopes vary freely across equations"),
+		allFree:     fs.Bool("all-nonparallel", false, "make every predictor nonparallel"),
+		constrained: fs.String("constrained", "", "predictors whose slopes vary by a common factor: a,b or name:a,b;other:c"),
+		stereotype:  fs.Bool("stereotype", false, "adjacent model with every predictor in one constrained group"),
+		weights:     fs.String("weights", "", "column of weights (frequency weights unless --weight-kind sampling)"),
+		weightKind:  fs.String("weight-kind", "frequency", "frequency or sampling weights; sampling weights imply sandwich errors"),
+		cluster:     fs.String("cluster", "", "column of cluster ids, for --covariance clustered"),
+		offset:      fs.String("offset", "", "column added to x'b in every equation"),
+		missing:     fs.String("missing", "drop", "rows with a missing value: drop (counted) or refuse"),
+		baseline:    fs.String("baseline", "", "also show an adjacent nonparallel logit as baseline-category logits against this category"),
+		level:       fs.Float64("confidence-level", 0.95, "confidence level of the intervals"),
+		asJSON:      fs.Bool("json", false, "print one JSON object instead of the table"),
+		queue:       addQueueFlags(fs, "with --partitions: the NATS JetStream server whose workers hold the partitions", true),
+		partitions:  fs.String("partitions", "", "fit one model over these CSV files (same columns) through --queue workers, for data too large for one machine"),
+	}
+	fs.TextVar(&f.approach, "approach", fit.Cumulative, "how categories are compared: "+fit.ComparisonWords.OrList())
+	fs.TextVar(&f.link, "link", fit.Logit, "link: "+fit.LinkWords.OrList())
+	fs.TextVar(&f.covariance, "covariance", fit.Observed, "standard errors: observed (information), expected (information), sandwich (HC1), sandwich_plain (HC0) or clustered (CR1)")
+	return f
+}
+
+// usageProblem checks the parsed flags: no arguments, the required flags,
+// the choices among fixed words ("" when all is well).
+func (f *fitFlags) usageProblem(fs *flag.FlagSet) string {
+	if fs.NArg() > 0 {
+		return fmt.Sprintf("unexpected argument %q", fs.Arg(0))
+	}
+	for _, req := range []struct{ name, v string }{{"data", *f.dataFile + *f.partitions}, {"outcome", *f.outcome}} {
+		if req.v == "" {
+			return fmt.Sprintf("--%s is required", req.name)
 		}
 	}
-	if *asJSON {
+	for _, c := range []struct{ name, v, a, b string }{
+		{"missing", *f.missing, "drop", "refuse"},
+		{"weight-kind", *f.weightKind, "frequency", "sampling"},
+		{"direction", *f.direction, "forward", "backward"},
+	} {
+		if c.v != c.a && c.v != c.b {
+			return fmt.Sprintf("--%s must be %s or %s, not %q", c.name, c.a, c.b, c.v)
+		}
+	}
+	return ""
+}
+
+// single is the model and data the flags describe.
+func (f *fitFlags) single() (runner.SingleFit, error) {
+	dspec, err := runner.ParseCompactTerms(*f.predictors)
+	if err != nil {
+		return runner.SingleFit{}, fmt.Errorf("--predictors: %w", err)
+	}
+	var termNames []string
+	for _, t := range dspec.Terms {
+		termNames = append(termNames, t.Name)
+	}
+	s := runner.SingleFit{DataFile: *f.dataFile, Outcome: *f.outcome, Categories: runner.SplitList(*f.categories),
+		Predictors: termNames, Design: &dspec, Approach: f.approach, Backward: *f.direction == "backward",
+		Link: f.link, Nonparallel: runner.SplitList(*f.nonparallel), Weights: *f.weights, Offset: *f.offset,
+		Refuse: *f.missing == "refuse", Covariance: f.covariance, Cluster: *f.cluster, Sampling: *f.weightKind == "sampling"}
+	if *f.allFree {
+		s.Nonparallel = s.Predictors
+	}
+	groups, err := runner.ParseGroups(*f.constrained)
+	if err != nil {
+		return s, fmt.Errorf("--constrained: %w", err)
+	}
+	s.Groups = groups
+	if *f.stereotype {
+		if len(groups) > 0 || len(s.Nonparallel) > 0 {
+			return s, errors.New("--stereotype puts every predictor in one constrained group: do not combine it with --constrained or --nonparallel")
+		}
+		s.Groups = []runner.Group{{Predictors: s.Predictors}}
+	}
+	return s, nil
+}
+
+// baselineOf is the baseline-category view --baseline asks for (nil when
+// it asks for none).
+func (f *fitFlags) baselineOf(res *fit.Result) (*fit.Baseline, error) {
+	if *f.baseline == "" {
+		return nil, nil
+	}
+	ref := -1
+	for i, l := range res.Categories {
+		if l == *f.baseline {
+			ref = i
+		}
+	}
+	if ref < 0 {
+		return nil, fmt.Errorf("--baseline: %q is not a category of %s (%s)", *f.baseline, *f.outcome, strings.Join(res.Categories, ", "))
+	}
+	return res.Baseline(ref)
+}
+
+// print writes the fit as one JSON object or as the tables.
+func (f *fitFlags) print(stdout io.Writer, res *fit.Result, ds *data.Dataset, base *fit.Baseline) error {
+	if *f.asJSON {
 		rec := runner.Record(res)
 		out := struct {
 			runner.FitRecord
@@ -233,29 +286,24 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		}{rec, base}
 		b, err := runner.MarshalStable(out)
 		if err != nil {
-			return fail(stderr, err)
+			return err
 		}
-		stdout.Write(b)
-	} else {
-		drop := ds.DropSummary()
-		for _, n := range ds.Notes {
-			drop += "; " + strings.TrimSuffix(n, ".")
-		}
-		sum := render.DataSummary{File: *dataFile, Outcome: *outcome, RowsRead: ds.RowsRead, RowsUsed: ds.N, DropSummary: drop}
-		if err := render.FitTable(stdout, res, sum, *level); err != nil {
-			return fail(stderr, err)
-		}
-		if base != nil {
-			render.BaselineTable(stdout, res, base)
-		}
-		if *stereotype && res.OK() {
-			if err := render.StereotypeTable(stdout, res); err != nil {
-				return fail(stderr, err)
-			}
-		}
+		_, err = stdout.Write(b)
+		return err
 	}
-	if !res.OK() {
-		return exitFail
+	drop := ds.DropSummary()
+	for _, n := range ds.Notes {
+		drop += "; " + strings.TrimSuffix(n, ".")
 	}
-	return exitOK
+	sum := render.DataSummary{File: *f.dataFile, Outcome: *f.outcome, RowsRead: ds.RowsRead, RowsUsed: ds.N, DropSummary: drop}
+	if err := render.FitTable(stdout, res, sum, *f.level); err != nil {
+		return err
+	}
+	if base != nil {
+		render.BaselineTable(stdout, res, base)
+	}
+	if *f.stereotype && res.OK() {
+		return render.StereotypeTable(stdout, res)
+	}
+	return nil
 }
