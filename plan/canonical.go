@@ -50,6 +50,8 @@ type canonData struct {
 	File          string        `json:"file"`
 	Missing       string        `json:"missing"`
 	MissingValues []string      `json:"missing_values"`
+	Delimiter     string        `json:"delimiter,omitempty"`
+	Decimal       string        `json:"decimal,omitempty"`
 	Weights       *string       `json:"weights"`
 	WeightKind    *string       `json:"weight_kind,omitempty"`
 	Offset        *string       `json:"offset"`
@@ -135,6 +137,8 @@ func (p *Plan) canonical() canonPlan {
 			File:          p.Data.File,
 			Missing:       p.Data.Missing,
 			MissingValues: p.Data.MissingValues,
+			Delimiter:     nonDefault(p.Data.Delimiter, "comma"),
+			Decimal:       nonDefault(p.Data.Decimal, "point"),
 			Weights:       optional(p.Data.Weights),
 			Offset:        optional(p.Data.Offset),
 			Cluster:       optional(p.Data.Cluster),
@@ -305,4 +309,13 @@ func canonTerms(terms []design.TermSpec) []any {
 		out = append(out, m)
 	}
 	return out
+}
+
+// nonDefault is s, or "" when s is the default (so that plans written
+// before a key existed keep their canonical form).
+func nonDefault(s, dflt string) string {
+	if s == dflt {
+		return ""
+	}
+	return s
 }

@@ -21,7 +21,19 @@ func (d *decoder) checkDataColumns(p *Plan) {
 	if p.Data.Path == "" || !d.clean("data.file") {
 		return
 	}
-	header, err := data.Header(p.Data.Path)
+	header, err := data.HeaderDialect(p.Data.Path, p.Data.Dialect())
+	if err == nil {
+		if raw, rerr := data.ReadFile(p.Data.Path); rerr == nil {
+			if msg := data.SuggestDialect(raw, p.Data.Dialect()); msg != "" {
+				key := "data.delimiter"
+				if !strings.Contains(msg, "delimiter: ") {
+					key = "data.decimal"
+				}
+				d.errAt(key, "data file %s: %s", p.Data.File, msg)
+				return
+			}
+		}
+	}
 	if err != nil {
 		var de *data.Error
 		if errors.As(err, &de) && de.Line == 0 && strings.HasPrefix(de.Msg, "cannot open file") {

@@ -3,12 +3,16 @@ package plan
 import (
 	"path/filepath"
 
+	"ordplan/runner/data"
+
 	"gopkg.in/yaml.v3"
 )
 
 func (d *decoder) dataDefaults(data *Data) {
 	data.Missing = "drop"
 	data.WeightKind = "frequency"
+	data.Delimiter = "comma"
+	data.Decimal = "point"
 }
 
 // decodeData reads the data section.
@@ -27,6 +31,8 @@ func (d *decoder) decodeData(n *yaml.Node, data *Data) {
 	if v := m.get("missing_values"); v != nil {
 		data.MissingValues, _ = d.readList(v, "data.missing_values", d.token)
 	}
+	m.word("delimiter", "delimiter", dataDelimiterWords, &data.Delimiter)
+	m.word("decimal", "decimal mark", dataDecimalWords, &data.Decimal)
 	m.name("weights", &data.Weights)
 	m.word("weight_kind", "weight kind", weightKindWords, &data.WeightKind)
 	m.name("offset", &data.Offset)
@@ -35,6 +41,11 @@ func (d *decoder) decodeData(n *yaml.Node, data *Data) {
 		data.Imputed = d.decodeImputed(v)
 	}
 }
+
+var (
+	dataDelimiterWords = data.DelimiterWords
+	dataDecimalWords   = data.DecimalWords
+)
 
 // decodeImputed reads data.imputed: file and column (one stacked file), or
 // files (one per imputed set, at least two).

@@ -43,6 +43,8 @@ type Data struct {
 	Path          string   // File resolved against Plan.Dir
 	Missing       string   // "drop" (default) or "refuse"
 	MissingValues []string // nil = reader default; empty = nothing counts as missing
+	Delimiter     string   // "comma" (default), "semicolon" or "tab"
+	Decimal       string   // decimal mark: "point" (default) or "comma"
 	Weights       string   // column, optional
 	WeightKind    string   // "frequency" (default) or "sampling"
 	Offset        string   // column, optional
@@ -194,3 +196,9 @@ func (m Models) HasEffects(s fit.Structure) bool { return slices.Contains(m.Effe
 
 // Backward reports whether stage models run backward.
 func (m Models) Backward() bool { return m.Direction == "backward" }
+
+// Dialect is how the data file writes fields and numbers.
+func (d *Data) Dialect() data.Dialect {
+	dl, _ := data.ParseDialect(d.Delimiter, d.Decimal)
+	return dl
+}

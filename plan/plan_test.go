@@ -54,6 +54,8 @@ func TestExamplePlan(t *testing.T) {
 		Path:          filepath.Join("..", "plans", "data", "quietstreets.csv"),
 		Missing:       "drop",
 		MissingValues: []string{"", "NA"},
+		Delimiter:     "comma",
+		Decimal:       "point",
 		WeightKind:    "frequency",
 	})
 	check("Outcomes", p.Outcomes, []Outcome{{
@@ -111,7 +113,7 @@ func TestDefaults(t *testing.T) {
 	}
 	check("Seed", p.Seed, uint64(1))
 	check("Covariance", p.Covariance, fit.Observed)
-	check("Data", p.Data, Data{File: "d.csv", Path: filepath.Join("plans", "d.csv"), Missing: "drop", WeightKind: "frequency"})
+	check("Data", p.Data, Data{File: "d.csv", Path: filepath.Join("plans", "d.csv"), Missing: "drop", WeightKind: "frequency", Delimiter: "comma", Decimal: "point"})
 	check("Outcomes", p.Outcomes, []Outcome{{Column: "y", Label: "y"}})
 	check("Approaches", p.Models.Approaches, []fit.Comparison{fit.Cumulative, fit.Stage, fit.Adjacent})
 	check("Direction", p.Models.Direction, "forward")

@@ -32,5 +32,5 @@ func ValidateData(p *plan.Plan) error {
 		rules = append(rules, data.Rule{Column: e.Column, Key: e.Key, Numeric: kind == "numeric",
 			Range: e.Range, Values: e.Values, Missing: e.Missing})
 	}
-	return data.Validate(p.Data.Path, rules, p.Data.MissingValues)
+	return data.ValidateDialect(p.Data.Path, rules, p.Data.MissingValues, p.Data.Dialect())
 }

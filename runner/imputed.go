@@ -44,7 +44,7 @@ func imputedSets(p *plan.Plan, oc plan.Outcome) (*ImputedRun, []*data.Dataset, *
 		run.Source, run.Files = "files", im.Files
 		var first []string
 		for k, path := range im.Paths {
-			h, err := data.Header(path)
+			h, err := data.HeaderDialect(path, p.Data.Dialect())
 			if err != nil {
 				return nil, nil, nil, fmt.Errorf("%s: data.imputed.files[%d]: %v", p.Path, k, err)
 			}
@@ -121,6 +121,10 @@ func imputationNumbers(p *plan.Plan, im *plan.Imputed) (int, error) {
 		return 0, fmt.Errorf("%s: data.imputed.file: %v", p.Path, err)
 	}
 	r := csv.NewReader(bytes.NewReader(raw))
+	r.Comma = p.Data.Dialect().Delimiter
+	if r.Comma == 0 {
+		r.Comma = ','
+	}
 	r.FieldsPerRecord = -1
 	head, err := r.Read()
 	if err != nil {

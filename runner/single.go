@@ -25,6 +25,7 @@ type SingleFit struct {
 	Offset      string
 	Cluster     string // cluster column for clustered covariance
 	Refuse      bool
+	Dialect     data.Dialect // the data file's delimiter and decimal mark
 	Covariance  fit.Covariance
 	Workers     int
 }
@@ -39,7 +40,7 @@ func FitOne(s SingleFit) (*fit.Result, *data.Dataset, error) {
 		return nil, nil, err
 	}
 	dopt := data.Options{Outcome: s.Outcome, Categories: s.Categories,
-		Weights: s.Weights, Offset: s.Offset, Cluster: s.Cluster, Refuse: s.Refuse}
+		Weights: s.Weights, Offset: s.Offset, Cluster: s.Cluster, Refuse: s.Refuse, Dialect: s.Dialect}
 	for _, src := range dspec.Sources {
 		dopt.Predictors = append(dopt.Predictors, src.Name)
 		if src.Cat != nil {

@@ -20,7 +20,7 @@ func dataOptions(p *plan.Plan, oc plan.Outcome, spec design.Spec) data.Options {
 		Outcome: oc.Column, Categories: oc.Categories,
 		Weights: p.Data.Weights, Offset: p.Data.Offset, Cluster: p.Data.Cluster,
 		Refuse: p.Data.Missing == "refuse", MissingTokens: p.Data.MissingValues,
-		Keep: p.Subset, ColumnMissing: columnMissing(p),
+		Keep: p.Subset, ColumnMissing: columnMissing(p), Dialect: p.Data.Dialect(),
 	}
 	for _, s := range spec.Sources {
 		dopt.Predictors = append(dopt.Predictors, s.Name)

@@ -44,7 +44,7 @@ var commands = []command{
 			"covariance": "--covariance sandwich", "nonparallel": "--nonparallel pilot", "all-nonparallel": "--all-nonparallel",
 			"constrained": "--constrained g1:pilot,female", "stereotype": "--approach adjacent --stereotype",
 			"weights": "--weights w", "weight-kind": "--weights w --weight-kind sampling", "cluster": "--covariance clustered --cluster street",
-			"offset": "--offset exposure", "missing": "--missing refuse", "baseline": "--approach adjacent --all-nonparallel --baseline neutral",
+			"offset": "--offset exposure", "missing": "--missing refuse", "delimiter": "--delimiter semicolon --decimal comma", "decimal": "--delimiter semicolon --decimal comma", "baseline": "--approach adjacent --all-nonparallel --baseline neutral",
 			"confidence-level": "--confidence-level 0.9", "json": "--json",
 			"queue": "--queue nats://10.0.0.5:4222 --partitions a.csv,b.csv", "partitions": "--partitions part1.csv,part2.csv",
 		},

@@ -127,6 +127,7 @@ type fitFlags struct {
 	dataFile, outcome, categories, predictors, direction *string
 	nonparallel, constrained, weights, weightKind        *string
 	cluster, offset, missing, baseline, partitions       *string
+	delimiter, decimal                                   *string
 	allFree, stereotype, asJSON                          *bool
 	level                                                *float64
 	approach                                             fit.Comparison
@@ -192,6 +193,8 @@ func defineFitFlags(fs *flag.FlagSet) *fitFlags {
 		cluster:     fs.String("cluster", "", "column of cluster ids, for --covariance clustered"),
 		offset:      fs.String("offset", "", "column added to x'b in every equation"),
 		missing:     fs.String("missing", "drop", "rows with a missing value: drop (counted) or refuse"),
+		delimiter:   fs.String("delimiter", "comma", "the character between the data file's fields: comma, semicolon or tab"),
+		decimal:     fs.String("decimal", "point", "the decimal mark of the data file's numbers: point (1.5) or comma (1,5)"),
 		baseline:    fs.String("baseline", "", "also show an adjacent nonparallel logit as baseline-category logits against this category"),
 		level:       fs.Float64("confidence-level", 0.95, "confidence level of the intervals"),
 		asJSON:      fs.Bool("json", false, "print one JSON object instead of the table"),
@@ -224,6 +227,9 @@ func (f *fitFlags) usageProblem(fs *flag.FlagSet) string {
 			return fmt.Sprintf("--%s must be %s or %s, not %q", c.name, c.a, c.b, c.v)
 		}
 	}
+	if _, err := data.ParseDialect(*f.delimiter, *f.decimal); err != nil {
+		return "--delimiter/--decimal: " + err.Error()
+	}
 	return ""
 }
 
@@ -241,6 +247,7 @@ func (f *fitFlags) single() (runner.SingleFit, error) {
 		Predictors: termNames, Design: &dspec, Approach: f.approach, Backward: *f.direction == "backward",
 		Link: f.link, Nonparallel: runner.SplitList(*f.nonparallel), Weights: *f.weights, Offset: *f.offset,
 		Refuse: *f.missing == "refuse", Covariance: f.covariance, Cluster: *f.cluster, Sampling: *f.weightKind == "sampling"}
+	s.Dialect, _ = data.ParseDialect(*f.delimiter, *f.decimal) // checked in usageProblem
 	if *f.allFree {
 		s.Nonparallel = s.Predictors
 	}

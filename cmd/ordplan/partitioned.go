@@ -41,7 +41,7 @@ func fitPartitioned(s runner.SingleFit, qf *queueFlags, parts []string, asJSON b
 	if err != nil {
 		return usageOrFail("fit", err, stderr)
 	}
-	dopt := data.Options{Outcome: s.Outcome, Categories: s.Categories, Predictors: s.Predictors, Weights: s.Weights, Offset: s.Offset, Refuse: s.Refuse}
+	dopt := data.Options{Outcome: s.Outcome, Categories: s.Categories, Predictors: s.Predictors, Weights: s.Weights, Offset: s.Offset, Refuse: s.Refuse, Dialect: s.Dialect}
 	whole, refs, read, err := queue.PartitionFiles(parts, dopt)
 	if err != nil {
 		return fail(stderr, err)

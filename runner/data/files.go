@@ -98,6 +98,9 @@ func ReadFile(path string) ([]byte, error) {
 	if msg := sniff(raw); msg != "" {
 		return nil, &Error{File: path, Msg: msg}
 	}
+	if msg := checkUTF8(raw); msg != "" {
+		return nil, &Error{File: path, Msg: msg}
+	}
 	return raw, nil
 }
 

@@ -33,6 +33,8 @@ type Options struct {
 	// ColumnMissing gives columns their own missing-value codes (such as
 	// "-9" in one column only), besides MissingTokens.
 	ColumnMissing map[string][]string
+	// Dialect is the file's delimiter and decimal mark (zero: comma, point).
+	Dialect Dialect
 }
 
 // DefaultMissing are the missing-value tokens used when

@@ -140,20 +140,29 @@ func (r *reader) names() ([]string, map[string]int, error) {
 // the column names as Load sees them (spaces around names removed). It
 // fails, with an *Error, where Load would fail on the header.
 func Header(path string) ([]string, error) {
+	return HeaderDialect(path, Dialect{})
+}
+
+// HeaderDialect is Header for a file in the given dialect.
+func HeaderDialect(path string, d Dialect) ([]string, error) {
 	f, err := openData(path)
 	if err != nil {
 		return nil, err
 	}
 	defer f.Close()
-	return ReadHeader(f, path)
+	return readHeader(f, path, d)
 }
 
 // ReadHeader is Header for a reader; name is used in messages.
 func ReadHeader(in io.Reader, name string) ([]string, error) {
+	return readHeader(in, name, Dialect{})
+}
+
+func readHeader(in io.Reader, name string, d Dialect) ([]string, error) {
 	if name == "" {
 		name = "<input>"
 	}
-	r := &reader{file: name}
+	r := &reader{file: name, opt: Options{Dialect: d}}
 	if err := r.start(in); err != nil {
 		return nil, err
 	}
@@ -169,10 +178,14 @@ func (r *reader) start(in io.Reader) error {
 	if msg := sniff(head); msg != "" {
 		return &Error{File: r.file, Msg: msg}
 	}
+	if msg := checkUTF8(head); msg != "" {
+		return &Error{File: r.file, Msg: msg}
+	}
 	if b, err := br.Peek(len(utf8BOM)); err == nil && bytes.Equal(b, utf8BOM) {
 		br.Discard(len(utf8BOM))
 	}
 	r.cr = csv.NewReader(br)
+	r.cr.Comma = r.opt.Dialect.delim()
 	r.cr.FieldsPerRecord = 0 // the header sets the width
 	r.cr.TrimLeadingSpace = true
 	return nil

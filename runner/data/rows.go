@@ -136,7 +136,7 @@ func (r *reader) outsideSubset(t *rowTally, rec []string) (int, error) {
 	for i, k := range r.opt.Keep {
 		c := r.cols[t.condCol[i]]
 		cell := strings.TrimSpace(rec[c.index])
-		ok, msg := k.keeps(cell, r.missing[cell])
+		ok, msg := k.keeps(cell, r.missing[cell], r.opt.Dialect)
 		if msg != "" {
 			line, _ := r.cr.FieldPos(c.index)
 			return -1, r.fail(line, c.name, "%s", msg)
@@ -195,16 +195,16 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 					msg = "value " + quoteCell(cell) + " is not one of the declared levels of this categorical predictor: " + quoteList(opt.PredictorLevels[c.name]) + " (add it to the levels, or list it among the missing-value markers)"
 				}
 				t.xs[c.pos] = float64(l)
-			} else if t.xs[c.pos], msg = parseNumber(cell); strings.HasSuffix(msg, " is not a number") && !isNumberLike(cell) {
+			} else if t.xs[c.pos], msg = r.opt.Dialect.number(cell); strings.HasSuffix(msg, " is not a number") && !isNumberLike(cell) {
 				msg += "; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)"
 			}
 		case roleWeights:
-			row.w, msg = parseNumber(cell)
+			row.w, msg = r.opt.Dialect.number(cell)
 			if msg == "" && row.w < 0 {
 				msg = "weight " + quoteCell(cell) + " is negative (frequency weights must be zero or more)"
 			}
 		case roleOffset:
-			row.off, msg = parseNumber(cell)
+			row.off, msg = r.opt.Dialect.number(cell)
 		case roleCluster:
 			row.cl = cell
 		}

@@ -35,7 +35,7 @@ func (c Condition) String() string {
 
 // keeps reports whether the trimmed cell meets the condition; a message
 // is returned when a comparison meets a cell that is not a number.
-func (c Condition) keeps(cell string, missing bool) (bool, string) {
+func (c Condition) keeps(cell string, missing bool, d Dialect) (bool, string) {
 	if missing {
 		return false, ""
 	}
@@ -45,7 +45,7 @@ func (c Condition) keeps(cell string, missing bool) (bool, string) {
 	case "not_in":
 		return !slices.Contains(c.Values, cell), ""
 	}
-	v, msg := parseNumber(cell)
+	v, msg := d.number(cell)
 	if msg != "" {
 		return false, msg + " (the subset condition " + c.String() + " compares numbers)"
 	}

@@ -44,12 +44,17 @@ func (e *ValidationError) Error() string {
 // the column's own codes) are not checked. Columns absent from the header
 // are left to the plan's column check.
 func Validate(path string, rules []Rule, missingTokens []string) error {
+	return ValidateDialect(path, rules, missingTokens, Dialect{})
+}
+
+// ValidateDialect is Validate for a file in the given dialect.
+func ValidateDialect(path string, rules []Rule, missingTokens []string, d Dialect) error {
 	f, err := openData(path)
 	if err != nil {
 		return err
 	}
 	defer f.Close()
-	r := &reader{file: path, opt: Options{MissingTokens: missingTokens, ColumnMissing: map[string][]string{}}}
+	r := &reader{file: path, opt: Options{MissingTokens: missingTokens, ColumnMissing: map[string][]string{}, Dialect: d}}
 	r.missing = r.opt.missingSet()
 	for _, ru := range rules {
 		r.opt.ColumnMissing[ru.Column] = ru.Missing
@@ -98,7 +103,7 @@ func Validate(path string, rules []Rule, missingTokens []string) error {
 				continue
 			}
 			var msg string
-			x, bad := parseNumber(cell)
+			x, bad := r.opt.Dialect.number(cell)
 			switch {
 			case bad != "":
 				msg = bad + "; the data dictionary (" + c.Key + ") describes a numeric column"

@@ -1,0 +1,147 @@
+package main
+
+import (
+	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// dialectPlan is a small plan over the bundled example data, in a folder
+// of its own; extra goes under data.
+func dialectPlan(t *testing.T, dir, file, extra string) string {
+	t.Helper()
+	src := `version: 1
+title: Dialect check
+seed: 7
+data:
+  file: ` + file + `
+  missing_values: ["", "NA"]
+` + extra + `
+outcomes:
+  - column: safety
+    categories: [very_unsafe, unsafe, neutral, safe, very_safe]
+categorical:
+  street_type: {levels: [residential, through_road, cul_de_sac]}
+predictors: [pilot, female, age, years_resident, street_type]
+subset:
+  - {column: years_resident, at_least: 0.5}
+models:
+  approaches: [cumulative, adjacent]
+  effects: [parallel, nonparallel]
+  links: [logit]
+tests:
+  parallel_lines: [lr, wald]
+rules:
+  - reject_unconverged: true
+  - prefer_simpler: {by: bic, margin: 2}
+report:
+  timestamp: false
+`
+	p := filepath.Join(dir, "plan.yaml")
+	if err := os.WriteFile(p, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+// toSemicolonComma rewrites a comma-separated file with decimal points as
+// a semicolon-separated file with decimal commas (the example data has
+// no quoted cells and no commas inside cells).
+func toSemicolonComma(b []byte) []byte {
+	lines := strings.Split(string(b), "\n")
+	for i, ln := range lines {
+		cells := strings.Split(ln, ",")
+		for j, c := range cells {
+			cells[j] = strings.ReplaceAll(c, ".", ",")
+		}
+		lines[i] = strings.Join(cells, ";")
+	}
+	return []byte(strings.Join(lines, "\n"))
+}
+
+// The same data written comma-separated with decimal points and
+// semicolon-separated with decimal commas give byte-identical
+// decisions.json through ordplan run; check suggests the dialect keys
+// when they are missing.
+func TestDialectsGiveIdenticalDecisions(t *testing.T) {
+	raw, err := os.ReadFile(filepath.Join("..", "..", "plans", "data", "quietstreets.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	semi := semicolonCopy(t, raw)
+	var outs [][]byte
+	for i, c := range []struct {
+		data  []byte
+		extra string
+	}{
+		{raw, "  delimiter: comma\n  decimal: point\n"},
+		{semi, "  delimiter: semicolon\n  decimal: comma\n"},
+	} {
+		dir := t.TempDir()
+		if err := os.WriteFile(filepath.Join(dir, "d.csv"), c.data, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		p := dialectPlan(t, dir, "d.csv", c.extra)
+		out := filepath.Join(dir, "out")
+		stdout, stderr, code := runCLI("run", p, "--out", out, "--quiet")
+		if code != 0 {
+			t.Fatalf("case %d: exit %d: %s %s", i, code, stdout, stderr)
+		}
+		b, err := os.ReadFile(filepath.Join(out, "decisions.json"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		// The hashes are those of the bytes as read: the data file's own,
+		// and the plan's (whose dialect keys differ); all else is equal.
+		sum := sha256.Sum256(c.data)
+		hashes := []string{hex.EncodeToString(sum[:]), planHash(t, p)}
+		for _, h := range hashes {
+			if !bytes.Contains(b, []byte(`"sha256": "`+h+`"`)) {
+				t.Errorf("case %d: decisions.json lacks the hash %s", i, h)
+			}
+			b = bytes.ReplaceAll(b, []byte(h), []byte("HASH"))
+		}
+		outs = append(outs, b)
+		if i == 1 {
+			// Without the keys, check says what the file looks like.
+			p := dialectPlan(t, dir, "d.csv", "")
+			_, stderr, code := runCLI("check", p)
+			if code == 0 || !strings.Contains(stderr, "looks semicolon-separated with a decimal comma") ||
+				!strings.Contains(stderr, "delimiter: semicolon and decimal: comma") {
+				t.Errorf("check without dialect keys: exit %d, %s", code, stderr)
+			}
+			// Only the decimal mark missing.
+			p = dialectPlan(t, dir, "d.csv", "  delimiter: semicolon\n")
+			_, stderr, code = runCLI("check", p)
+			if code == 0 || !strings.Contains(stderr, "data.decimal") || !strings.Contains(stderr, "set decimal: comma") {
+				t.Errorf("check without decimal key: exit %d, %s", code, stderr)
+			}
+		}
+	}
+	if !bytes.Equal(outs[0], outs[1]) {
+		t.Errorf("decisions.json differs between the comma/point and semicolon/comma files")
+	}
+}
+
+func semicolonCopy(t *testing.T, raw []byte) []byte {
+	t.Helper()
+	semi := toSemicolonComma(raw)
+	if bytes.Contains(semi, []byte(",,")) || !bytes.Contains(semi, []byte(";")) {
+		t.Fatal("conversion of the example data failed")
+	}
+	return semi
+}
+
+func planHash(t *testing.T, path string) string {
+	t.Helper()
+	b, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sum := sha256.Sum256(b)
+	return hex.EncodeToString(sum[:])
+}

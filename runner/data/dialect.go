@@ -1,0 +1,182 @@
+package data
+
+import (
+	"bytes"
+	"fmt"
+	"strings"
+	"unicode/utf8"
+)
+
+// Dialect is how a CSV file writes its fields and numbers: the character
+// between fields and the decimal mark. The zero value is comma-separated
+// with a decimal point.
+type Dialect struct {
+	Delimiter    rune // ',' (0 means ','), ';' or '\t'
+	DecimalComma bool // numbers are written 1,5 rather than 1.5
+}
+
+// Delimiters maps the delimiter words of plans and flags to characters.
+var Delimiters = map[string]rune{"comma": ',', "semicolon": ';', "tab": '\t'}
+
+// DelimiterWords and DecimalWords are the accepted words, in order.
+var (
+	DelimiterWords = []string{"comma", "semicolon", "tab"}
+	DecimalWords   = []string{"point", "comma"}
+)
+
+// ParseDialect builds a dialect from the words of a plan or the flags of
+// ordplan fit ("" means the default).
+func ParseDialect(delimiter, decimal string) (Dialect, error) {
+	var d Dialect
+	if delimiter != "" {
+		c, ok := Delimiters[delimiter]
+		if !ok {
+			return d, fmt.Errorf("delimiter %q is not one of %s", delimiter, strings.Join(DelimiterWords, ", "))
+		}
+		d.Delimiter = c
+	}
+	switch decimal {
+	case "", "point":
+	case "comma":
+		d.DecimalComma = true
+	default:
+		return d, fmt.Errorf("decimal mark %q is not one of %s", decimal, strings.Join(DecimalWords, ", "))
+	}
+	return d, nil
+}
+
+func (d Dialect) delim() rune {
+	if d.Delimiter == 0 {
+		return ','
+	}
+	return d.Delimiter
+}
+
+// DelimiterWord names the dialect's delimiter as plans write it.
+func (d Dialect) DelimiterWord() string {
+	for _, w := range DelimiterWords {
+		if Delimiters[w] == d.delim() {
+			return w
+		}
+	}
+	return "comma"
+}
+
+// DecimalWord names the dialect's decimal mark as plans write it.
+func (d Dialect) DecimalWord() string {
+	if d.DecimalComma {
+		return "comma"
+	}
+	return "point"
+}
+
+// number parses a trimmed, non-missing numeric cell in the dialect's
+// decimal mark. With a decimal comma, a point in the cell is refused
+// rather than guessed at (it could be a thousands separator).
+func (d Dialect) number(cell string) (float64, string) {
+	if !d.DecimalComma {
+		if strings.ContainsRune(cell, ',') && isNumberLike(cell) {
+			if _, msg := parseNumber(strings.Replace(cell, ",", ".", 1)); msg == "" && strings.Count(cell, ",") == 1 {
+				return 0, "value " + quoteCell(cell) + " is not a number (it has a decimal comma; if the file writes numbers that way, set data.decimal: comma, or --decimal comma)"
+			}
+		}
+		return parseNumber(cell)
+	}
+	if strings.ContainsRune(cell, '.') && isNumberLike(cell) {
+		return 0, "value " + quoteCell(cell) + " has a point, but the decimal mark is a comma (data.decimal: comma); write numbers without thousands separators, such as 1234,5"
+	}
+	if strings.Count(cell, ",") > 1 {
+		return 0, "value " + quoteCell(cell) + " is not a number (more than one decimal comma)"
+	}
+	v, msg := parseNumber(strings.Replace(cell, ",", ".", 1))
+	if msg != "" {
+		return 0, strings.Replace(msg, quoteCell(strings.Replace(cell, ",", ".", 1)), quoteCell(cell), 1)
+	}
+	return v, ""
+}
+
+// checkUTF8 refuses text that is not UTF-8, from the first bytes read (a
+// rune cut at the end of the sample is not counted).
+func checkUTF8(head []byte) string {
+	if utf8.Valid(head) {
+		return ""
+	}
+	for i := 0; i < len(head); {
+		r, n := utf8.DecodeRune(head[i:])
+		if r == utf8.RuneError && n <= 1 {
+			if len(head)-i < utf8.UTFMax && !utf8.FullRune(head[i:]) {
+				return ""
+			}
+			line := 1 + bytes.Count(head[:i], []byte{'\n'})
+			return fmt.Sprintf("is not UTF-8 text (byte 0x%02x on line %d is not valid UTF-8; perhaps Latin-1 or Windows-1252): save the file as UTF-8", head[i], line)
+		}
+		i += n
+	}
+	return ""
+}
+
+// SuggestDialect looks at the first lines of a CSV file (its bytes) and,
+// when they look written in another dialect than d, says which plan keys
+// would read them; "" when nothing suggests another dialect.
+func SuggestDialect(raw []byte, d Dialect) string {
+	raw = bytes.TrimPrefix(raw, utf8BOM)
+	head := raw[:min(len(raw), 64<<10)]
+	lines := strings.Split(strings.ReplaceAll(string(head), "\r\n", "\n"), "\n")
+	if len(lines) > 1 && len(head) == 64<<10 {
+		lines = lines[:len(lines)-1] // the last one may be cut
+	}
+	if len(lines) == 0 || strings.TrimSpace(lines[0]) == "" {
+		return ""
+	}
+	hdr := lines[0]
+	count := func(c rune) int { return strings.Count(hdr, string(c)) }
+	want := d
+	if count(d.delim()) == 0 {
+		best, bestN := rune(0), 0
+		for _, w := range DelimiterWords {
+			c := Delimiters[w]
+			if n := count(c); n > bestN {
+				best, bestN = c, n
+			}
+		}
+		if best != 0 {
+			want.Delimiter = best
+		}
+	}
+	// The decimal mark: cells like 1,5 in a file whose delimiter is not a
+	// comma, or cells with a point and no comma under a decimal comma.
+	if want.delim() != ',' {
+		commas, points := 0, 0
+		for _, ln := range lines[1:min(len(lines), 200)] {
+			for _, cell := range strings.Split(ln, string(want.delim())) {
+				cell = strings.Trim(strings.TrimSpace(cell), `"`)
+				if !isNumberLike(cell) {
+					continue
+				}
+				if _, msg := parseNumber(strings.Replace(cell, ",", ".", 1)); msg == "" && strings.Count(cell, ",") == 1 && !strings.ContainsRune(cell, '.') {
+					commas++
+				} else if _, msg := parseNumber(cell); msg == "" && strings.ContainsRune(cell, '.') {
+					points++
+				}
+			}
+		}
+		switch {
+		case commas > 0 && points == 0:
+			want.DecimalComma = true
+		case points > 0 && commas == 0:
+			want.DecimalComma = false
+		}
+	}
+	if want.delim() == d.delim() && want.DecimalComma == d.DecimalComma {
+		return ""
+	}
+	var keys []string
+	if want.delim() != d.delim() {
+		keys = append(keys, "delimiter: "+want.DelimiterWord())
+	}
+	if want.DecimalComma != d.DecimalComma {
+		keys = append(keys, "decimal: "+want.DecimalWord())
+	}
+	return fmt.Sprintf("the file looks %s-separated with a decimal %s, but is read as %s-separated with a decimal %s: set %s under data (ordplan fit: --delimiter %s --decimal %s)",
+		want.DelimiterWord(), want.DecimalWord(), d.DelimiterWord(), d.DecimalWord(), strings.Join(keys, " and "), want.DelimiterWord(), want.DecimalWord())
+}
