@@ -52,6 +52,8 @@ type canonData struct {
 	MissingValues []string      `json:"missing_values"`
 	Delimiter     string        `json:"delimiter,omitempty"`
 	Decimal       string        `json:"decimal,omitempty"`
+	Sheet         string        `json:"sheet,omitempty"`
+	HeaderRow     int           `json:"header_row,omitempty"`
 	Weights       *string       `json:"weights"`
 	WeightKind    *string       `json:"weight_kind,omitempty"`
 	Offset        *string       `json:"offset"`
@@ -139,6 +141,8 @@ func (p *Plan) canonical() canonPlan {
 			MissingValues: p.Data.MissingValues,
 			Delimiter:     nonDefault(p.Data.Delimiter, "comma"),
 			Decimal:       nonDefault(p.Data.Decimal, "point"),
+			Sheet:         p.Data.Sheet,
+			HeaderRow:     headerRowCanon(p.Data.HeaderRow),
 			Weights:       optional(p.Data.Weights),
 			Offset:        optional(p.Data.Offset),
 			Cluster:       optional(p.Data.Cluster),
@@ -318,4 +322,12 @@ func nonDefault(s, dflt string) string {
 		return ""
 	}
 	return s
+}
+
+// headerRowCanon is the header row, or 0 for the first row (the default).
+func headerRowCanon(h int) int {
+	if h <= 1 {
+		return 0
+	}
+	return h
 }

@@ -33,6 +33,16 @@ func (d *decoder) decodeData(n *yaml.Node, data *Data) {
 	}
 	m.word("delimiter", "delimiter", dataDelimiterWords, &data.Delimiter)
 	m.word("decimal", "decimal mark", dataDecimalWords, &data.Decimal)
+	m.text("sheet", &data.Sheet)
+	if v := m.get("header_row"); v != nil {
+		if h, ok := d.integer(v, "data.header_row"); ok {
+			if h < 1 || h > 1<<20 {
+				d.errorf(v, "data.header_row", "must be a sheet row number, 1 or more (got %d)", h)
+			} else {
+				data.HeaderRow = int(h)
+			}
+		}
+	}
 	m.name("weights", &data.Weights)
 	m.word("weight_kind", "weight kind", weightKindWords, &data.WeightKind)
 	m.name("offset", &data.Offset)

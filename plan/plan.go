@@ -45,6 +45,8 @@ type Data struct {
 	MissingValues []string // nil = reader default; empty = nothing counts as missing
 	Delimiter     string   // "comma" (default), "semicolon" or "tab"
 	Decimal       string   // decimal mark: "point" (default) or "comma"
+	Sheet         string   // .xlsx worksheet ("" = the first)
+	HeaderRow     int      // .xlsx header row (0 = the first row)
 	Weights       string   // column, optional
 	WeightKind    string   // "frequency" (default) or "sampling"
 	Offset        string   // column, optional
@@ -200,5 +202,6 @@ func (m Models) Backward() bool { return m.Direction == "backward" }
 // Dialect is how the data file writes fields and numbers.
 func (d *Data) Dialect() data.Dialect {
 	dl, _ := data.ParseDialect(d.Delimiter, d.Decimal)
+	dl.Sheet, dl.HeaderRow = d.Sheet, d.HeaderRow
 	return dl
 }

@@ -217,7 +217,9 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		"huge.yaml":  append([]byte("# "), bytes.Repeat([]byte("x"), 4<<20-1)...),
 		"gz.csv":     gz.Bytes(), "u16.csv": u16(true), "u16nobom.csv": u16(false),
 		"cr.csv": []byte(strings.ReplaceAll(csv, "\n", "\r")), "two.csv": []byte(two.String()),
-		"new.csv": []byte("a,b\n0.5,1\n-1,0\n"), "short.key": []byte("short\n"), "precious.txt": []byte("keep me\n"),
+		"bad.xlsx": append([]byte("PK\x03\x04"), bytes.Repeat([]byte{7}, 200)...), "notzip.xlsx": []byte(csv),
+		"book.xlsx": toWorkbook(t, []byte(strings.ReplaceAll(csv, "safety", "y"))),
+		"new.csv":   []byte("a,b\n0.5,1\n-1,0\n"), "short.key": []byte("short\n"), "precious.txt": []byte("keep me\n"),
 	}
 	for name, b := range files {
 		if err := os.WriteFile(filepath.Join(dir, name), b, 0o644); err != nil {
@@ -365,7 +367,7 @@ func catalogue(dir string) (items []badInput) {
 		{id: "P1", name: "unknown key", args: []string{"check"}, plan: edit("predictors:", "predictorz: [a]\npredictors:"), code: 1,
 			want: []string{`P1.yaml:6:1: predictorz: unknown key "predictorz" (allowed: version, title, seed, data, outcomes, subset, categorical, predictors, models, tests, rules, covariance, report, inference`}},
 		{id: "P2", name: "unknown nested key", args: []string{"check"}, plan: edit("  file: d.csv\n", "  file: d.csv\n  colour: red\n"), code: 1,
-			want: []string{`P2.yaml:4:3: data.colour: unknown key "colour" (allowed: file, missing, missing_values, delimiter, decimal, weights, weight_kind, offset, cluster, imputed)`}},
+			want: []string{`P2.yaml:4:3: data.colour: unknown key "colour" (allowed: file, missing, missing_values, delimiter, decimal, sheet, header_row, weights, weight_kind, offset, cluster, imputed)`}},
 		{id: "P3", name: "wrong type: a number for a list", args: []string{"check"}, plan: edit("predictors: [a, b]", "predictors: 3"), code: 1,
 			want: []string{`P3.yaml:6:13: predictors: want a list, got number 3`}},
 		{id: "P4", name: "wrong type: text for a number", args: []string{"check"}, plan: edit("{by: aic}", "{by: aic, margin: wide}"), code: 1,
@@ -489,6 +491,14 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`semipt.csv:2: column "a": value "0.5" has a point, but the decimal mark is a comma (data.decimal: comma)`}},
 		{id: "D22", name: "unknown delimiter word", args: fitArgs(d("semi.csv"), "--predictors", "a,b", "--delimiter", "pipe"), code: 2,
 			want: []string{`ordplan fit: --delimiter/--decimal: delimiter "pipe" is not one of comma, semicolon, tab`}},
+		{id: "X1", name: "malformed .xlsx workbook", args: fitArgs(d("bad.xlsx"), "--predictors", "a,b"), code: 1,
+			want: []string{`bad.xlsx: is not a readable .xlsx workbook (`, `): open and save it again as .xlsx, or export the sheet as CSV`}},
+		{id: "X2", name: "CSV text named .xlsx", args: fitArgs(d("notzip.xlsx"), "--predictors", "a,b"), code: 1,
+			want: []string{`notzip.xlsx: is not an .xlsx workbook (it does not start like one, a ZIP container): save it as .xlsx, or give the file a .csv name if it is CSV text`}},
+		{id: "X3", name: "workbook without the named sheet", args: []string{"run"}, plan: edit("file: d.csv", "file: book.xlsx\n  sheet: Results"), code: 1,
+			want: []string{`book.xlsx: workbook has no sheet "Results" (data.sheet); its sheets: "Sheet1", "survey"`}},
+		{id: "X4", name: "header row below the sheet's last row", args: []string{"run"}, plan: edit("file: d.csv", "file: book.xlsx\n  sheet: survey\n  header_row: 900"), code: 1,
+			want: []string{`book.xlsx: sheet "survey" has `, ` rows, so no header in row 900 (data.header_row)`}},
 		{id: "D17", name: "lines ending in CR alone", args: fitArgs(d("cr.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`cr.csv: ends its lines with a carriage return alone (CR, an old Mac format): convert the line ends to LF or CRLF`}},
 
@@ -752,7 +762,7 @@ func TestBadInputCatalogueIsDocumented(t *testing.T) {
 		t.Fatal(err)
 	}
 	inDoc := map[string]bool{}
-	for _, m := range regexp.MustCompile(`(?m)^\| ([PDMWRVTAOQIC][0-9]+) \|`).FindAllStringSubmatch(string(doc), -1) {
+	for _, m := range regexp.MustCompile(`(?m)^\| ([PDMWRVTAOQICX][0-9]+) \|`).FindAllStringSubmatch(string(doc), -1) {
 		inDoc[m[1]] = true
 	}
 	tested := map[string]bool{}

@@ -6,8 +6,11 @@ import (
 	"encoding/hex"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
+
+	"github.com/xuri/excelize/v2"
 )
 
 // dialectPlan is a small plan over the bundled example data, in a folder
@@ -144,4 +147,81 @@ func planHash(t *testing.T, path string) string {
 	}
 	sum := sha256.Sum256(b)
 	return hex.EncodeToString(sum[:])
+}
+
+// toWorkbook writes a CSV file as an .xlsx workbook: a first sheet of
+// notes, then the data on sheet "survey" under a title row and an empty
+// row, numbers as numbers and text as text.
+func toWorkbook(t *testing.T, raw []byte) []byte {
+	t.Helper()
+	f := excelize.NewFile()
+	defer f.Close()
+	f.SetCellValue("Sheet1", "A1", "notes: the data are on the sheet survey")
+	if _, err := f.NewSheet("survey"); err != nil {
+		t.Fatal(err)
+	}
+	f.SetCellValue("survey", "A1", "Quiet streets survey")
+	for i, ln := range strings.Split(strings.TrimSpace(string(raw)), "\n") {
+		for j, c := range strings.Split(ln, ",") {
+			cell, _ := excelize.CoordinatesToCellName(j+1, i+3)
+			if v, err := strconv.ParseFloat(c, 64); err == nil && i > 0 {
+				f.SetCellValue("survey", cell, v)
+			} else if c != "" {
+				f.SetCellValue("survey", cell, c)
+			}
+		}
+	}
+	var b bytes.Buffer
+	if err := f.Write(&b); err != nil {
+		t.Fatal(err)
+	}
+	return b.Bytes()
+}
+
+// The same data in CSV and in an .xlsx workbook (named sheet, header
+// row) give byte-identical decisions.json through ordplan run, but for
+// the hashes of the files as read.
+func TestWorkbookGivesIdenticalDecisions(t *testing.T) {
+	raw, err := os.ReadFile(filepath.Join("..", "..", "plans", "data", "quietstreets.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var outs [][]byte
+	for i, c := range []struct {
+		name  string
+		data  []byte
+		extra string
+	}{
+		{"d.csv", raw, "  sheet: survey\n  header_row: 1\n"},
+		{"d.xlsx", toWorkbook(t, raw), "  sheet: survey\n  header_row: 3\n"},
+	} {
+		dir := t.TempDir()
+		if err := os.WriteFile(filepath.Join(dir, c.name), c.data, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		p := dialectPlan(t, dir, c.name, c.extra)
+		out := filepath.Join(dir, "out")
+		stdout, stderr, code := runCLI("run", p, "--out", out, "--quiet")
+		if code != 0 {
+			t.Fatalf("case %d: exit %d: %s %s", i, code, stdout, stderr)
+		}
+		b, err := os.ReadFile(filepath.Join(out, "decisions.json"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		sum := sha256.Sum256(c.data)
+		for _, h := range []string{hex.EncodeToString(sum[:]), planHash(t, p)} {
+			if !bytes.Contains(b, []byte(`"sha256": "`+h+`"`)) {
+				t.Errorf("case %d: decisions.json lacks the hash %s", i, h)
+			}
+			b = bytes.ReplaceAll(b, []byte(h), []byte("HASH"))
+		}
+		b = bytes.ReplaceAll(b, []byte(c.name), []byte("FILE"))
+		outs = append(outs, b)
+	}
+	if !bytes.Equal(outs[0], outs[1]) {
+		os.WriteFile("/tmp/wA.json", outs[0], 0o644)
+		os.WriteFile("/tmp/wB.json", outs[1], 0o644)
+		t.Errorf("decisions.json differs between the CSV file and the workbook")
+	}
 }

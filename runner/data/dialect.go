@@ -13,6 +13,11 @@ import (
 type Dialect struct {
 	Delimiter    rune // ',' (0 means ','), ';' or '\t'
 	DecimalComma bool // numbers are written 1,5 rather than 1.5
+	// Sheet names the worksheet of an .xlsx workbook ("" = the first);
+	// HeaderRow is the sheet row holding the column names (0 or 1 = the
+	// first row; rows above it, such as a title, are skipped).
+	Sheet     string
+	HeaderRow int
 }
 
 // Delimiters maps the delimiter words of plans and flags to characters.

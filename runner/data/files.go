@@ -95,6 +95,9 @@ func ReadFile(path string) ([]byte, error) {
 	if err != nil {
 		return nil, &Error{File: path, Msg: "cannot read file: " + osReason(err), Err: err}
 	}
+	if IsWorkbook(path) {
+		return raw, nil
+	}
 	if msg := sniff(raw); msg != "" {
 		return nil, &Error{File: path, Msg: msg}
 	}

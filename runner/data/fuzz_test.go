@@ -6,6 +6,8 @@ import (
 	"math"
 	"strings"
 	"testing"
+
+	"github.com/xuri/excelize/v2"
 )
 
 func FuzzRead(f *testing.F) {
@@ -47,6 +49,36 @@ func FuzzRead(f *testing.F) {
 		for _, y := range d.Y {
 			if y < 0 || y >= len(d.Categories) {
 				t.Fatalf("Y value %d out of range 0..%d", y, len(d.Categories)-1)
+			}
+		}
+	})
+}
+
+// FuzzReadWorkbook feeds arbitrary bytes (seeded with a real workbook and
+// broken copies of it) to the .xlsx path: every failure is an *Error.
+func FuzzReadWorkbook(f *testing.F) {
+	book := excelize.NewFile()
+	for i, row := range [][]any{{"y", "a", "b"}, {1, 0.5, 2}, {2, 1.5, 0}, {3, -1, 1}} {
+		cell, _ := excelize.CoordinatesToCellName(1, i+1)
+		book.SetSheetRow("Sheet1", cell, &row)
+	}
+	var b bytes.Buffer
+	book.Write(&b)
+	good := b.Bytes()
+	f.Add(good)
+	f.Add(good[:len(good)/2])
+	f.Add([]byte("PK\x03\x04"))
+	f.Add([]byte("y,a,b\n1,2,3\n"))
+	opt := Options{Outcome: "y", Predictors: []string{"a", "b"}}
+	f.Fuzz(func(t *testing.T, in []byte) {
+		if len(in) > 1<<16 {
+			return
+		}
+		_, err := Read(bytes.NewReader(in), "fuzz.xlsx", opt)
+		if err != nil {
+			var e *Error
+			if !errors.As(err, &e) {
+				t.Fatalf("error %T is not *Error: %v", err, err)
 			}
 		}
 	})

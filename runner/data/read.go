@@ -51,7 +51,7 @@ type reader struct {
 	file    string
 	opt     Options
 	missing map[string]bool
-	cr      *csv.Reader
+	cr      records
 	cols    []usedCol
 	width   int
 }
@@ -173,6 +173,18 @@ func readHeader(in io.Reader, name string, d Dialect) ([]string, error) {
 // start sets up the CSV reader, skipping a UTF-8 byte order mark. A
 // compressed, UTF-16, binary or CR-only file is refused, named as such.
 func (r *reader) start(in io.Reader) error {
+	if IsWorkbook(r.file) {
+		raw, err := io.ReadAll(in)
+		if err != nil {
+			return &Error{File: r.file, Msg: "cannot read file: " + osReason(err), Err: err}
+		}
+		sr, msg := openSheet(raw, r.opt.Dialect)
+		if msg != "" {
+			return &Error{File: r.file, Msg: msg}
+		}
+		r.cr = sr
+		return nil
+	}
 	br := bufio.NewReaderSize(in, 64<<10)
 	head, _ := br.Peek(4096)
 	if msg := sniff(head); msg != "" {
@@ -184,9 +196,10 @@ func (r *reader) start(in io.Reader) error {
 	if b, err := br.Peek(len(utf8BOM)); err == nil && bytes.Equal(b, utf8BOM) {
 		br.Discard(len(utf8BOM))
 	}
-	r.cr = csv.NewReader(br)
-	r.cr.Comma = r.opt.Dialect.delim()
-	r.cr.FieldsPerRecord = 0 // the header sets the width
-	r.cr.TrimLeadingSpace = true
+	cr := csv.NewReader(br)
+	cr.Comma = r.opt.Dialect.delim()
+	cr.FieldsPerRecord = 0 // the header sets the width
+	cr.TrimLeadingSpace = true
+	r.cr = cr
 	return nil
 }

@@ -1,0 +1,113 @@
+package data
+
+import (
+	"bytes"
+	"encoding/csv"
+	"fmt"
+	"io"
+	"path/filepath"
+	"strings"
+
+	"github.com/xuri/excelize/v2"
+)
+
+// records is what the reader takes from a file of any format: the header
+// and then one record of cell texts at a time, with the line (for a
+// workbook, the sheet's row number) where a field starts. A format only
+// yields header and cells; everything else is one path.
+type records interface {
+	Read() ([]string, error)
+	FieldPos(field int) (line, column int)
+}
+
+// IsWorkbook reports whether a data file is read as an .xlsx workbook
+// (by its name).
+func IsWorkbook(name string) bool {
+	return strings.EqualFold(filepath.Ext(name), ".xlsx")
+}
+
+// sheetRecords are the rows of one worksheet, from the header row on.
+type sheetRecords struct {
+	rows  [][]string
+	first int // sheet row number of rows[0]
+	next  int
+	width int // header width, once read
+	line  int // row number of the last record read
+}
+
+// openSheet reads the workbook in raw and returns the records of the
+// dialect's sheet (the first sheet when none is named), starting at its
+// header row.
+func openSheet(raw []byte, d Dialect) (*sheetRecords, string) {
+	if !bytes.HasPrefix(raw, []byte("PK\x03\x04")) {
+		return nil, "is not an .xlsx workbook (it does not start like one, a ZIP container): save it as .xlsx, or give the file a .csv name if it is CSV text"
+	}
+	f, err := excelize.OpenReader(bytes.NewReader(raw))
+	if err != nil {
+		return nil, "is not a readable .xlsx workbook (" + err.Error() + "): open and save it again as .xlsx, or export the sheet as CSV"
+	}
+	defer f.Close()
+	sheets := f.GetSheetList()
+	if len(sheets) == 0 {
+		return nil, "workbook has no worksheets"
+	}
+	sheet := d.Sheet
+	if sheet == "" {
+		sheet = sheets[0]
+	} else if idx, _ := f.GetSheetIndex(sheet); idx < 0 {
+		return nil, fmt.Sprintf("workbook has no sheet %s (data.sheet); its sheets: %s", quoteCell(sheet), quoteList(sheets))
+	}
+	rows, err := f.GetRows(sheet, excelize.Options{RawCellValue: true})
+	if err != nil {
+		return nil, fmt.Sprintf("sheet %s cannot be read: %v", quoteCell(sheet), err)
+	}
+	h := max(d.HeaderRow, 1)
+	if h > len(rows) {
+		return nil, fmt.Sprintf("sheet %s has %d rows, so no header in row %d (data.header_row)", quoteCell(sheet), len(rows), h)
+	}
+	return &sheetRecords{rows: rows[h-1:], first: h}, ""
+}
+
+// Read returns the next non-empty row, padded with empty cells to the
+// header's width (a workbook leaves trailing empty cells out); a row with
+// a filled cell beyond the header is an error, as in CSV.
+func (s *sheetRecords) Read() ([]string, error) {
+	for s.next < len(s.rows) {
+		rec := s.rows[s.next]
+		s.line = s.first + s.next
+		s.next++
+		empty := true
+		for _, c := range rec {
+			if strings.TrimSpace(c) != "" {
+				empty = false
+				break
+			}
+		}
+		if empty {
+			continue
+		}
+		if s.width == 0 {
+			for len(rec) > 0 && strings.TrimSpace(rec[len(rec)-1]) == "" {
+				rec = rec[:len(rec)-1]
+			}
+			s.width = len(rec)
+			return rec, nil
+		}
+		if len(rec) > s.width {
+			for _, c := range rec[s.width:] {
+				if strings.TrimSpace(c) != "" {
+					return rec, &csv.ParseError{StartLine: s.line, Line: s.line, Err: csv.ErrFieldCount}
+				}
+			}
+			rec = rec[:s.width]
+		}
+		for len(rec) < s.width {
+			rec = append(rec, "")
+		}
+		return rec, nil
+	}
+	return nil, io.EOF
+}
+
+// FieldPos gives the sheet row of the last record read.
+func (s *sheetRecords) FieldPos(int) (int, int) { return s.line, 0 }
