@@ -22,7 +22,7 @@ func (d *decoder) checkDataColumns(p *Plan) {
 		return
 	}
 	header, err := data.HeaderDialect(p.Data.Path, p.Data.Dialect())
-	if err == nil && !data.IsWorkbook(p.Data.Path) {
+	if err == nil && !data.IsWorkbook(p.Data.Path) && !data.IsParquet(p.Data.Path) {
 		if raw, rerr := data.ReadFile(p.Data.Path); rerr == nil {
 			if msg := data.SuggestDialect(raw, p.Data.Dialect()); msg != "" {
 				key := "data.delimiter"

@@ -218,6 +218,7 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		"gz.csv":     gz.Bytes(), "u16.csv": u16(true), "u16nobom.csv": u16(false),
 		"cr.csv": []byte(strings.ReplaceAll(csv, "\n", "\r")), "two.csv": []byte(two.String()),
 		"bad.xlsx": append([]byte("PK\x03\x04"), bytes.Repeat([]byte{7}, 200)...), "notzip.xlsx": []byte(csv),
+		"bad.parquet": []byte("PAR1garbagegarbagePAR1"), "notpq.parquet": []byte(csv),
 		"book.xlsx": toWorkbook(t, []byte(strings.ReplaceAll(csv, "safety", "y"))),
 		"new.csv":   []byte("a,b\n0.5,1\n-1,0\n"), "short.key": []byte("short\n"), "precious.txt": []byte("keep me\n"),
 	}
@@ -499,6 +500,10 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`book.xlsx: workbook has no sheet "Results" (data.sheet); its sheets: "Sheet1", "survey"`}},
 		{id: "X4", name: "header row below the sheet's last row", args: []string{"run"}, plan: edit("file: d.csv", "file: book.xlsx\n  sheet: survey\n  header_row: 900"), code: 1,
 			want: []string{`book.xlsx: sheet "survey" has `, ` rows, so no header in row 900 (data.header_row)`}},
+		{id: "X5", name: "malformed Parquet file", args: fitArgs(d("bad.parquet"), "--predictors", "a,b"), code: 1,
+			want: []string{`bad.parquet: is not a readable Parquet file (parquet file footer of 1701273954 bytes does not fit in a file of 22 bytes)`}},
+		{id: "X6", name: "CSV text named .parquet", args: fitArgs(d("notpq.parquet"), "--predictors", "a,b"), code: 1,
+			want: []string{`notpq.parquet: is not a Parquet file (it does not start and end with PAR1): convert it to Parquet, or give the file a .csv name if it is CSV text`}},
 		{id: "D17", name: "lines ending in CR alone", args: fitArgs(d("cr.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`cr.csv: ends its lines with a carriage return alone (CR, an old Mac format): convert the line ends to LF or CRLF`}},
 

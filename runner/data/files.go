@@ -95,7 +95,7 @@ func ReadFile(path string) ([]byte, error) {
 	if err != nil {
 		return nil, &Error{File: path, Msg: "cannot read file: " + osReason(err), Err: err}
 	}
-	if IsWorkbook(path) {
+	if IsWorkbook(path) || IsParquet(path) {
 		return raw, nil
 	}
 	if msg := sniff(raw); msg != "" {

@@ -7,6 +7,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/parquet-go/parquet-go"
 	"github.com/xuri/excelize/v2"
 )
 
@@ -75,6 +76,38 @@ func FuzzReadWorkbook(f *testing.F) {
 			return
 		}
 		_, err := Read(bytes.NewReader(in), "fuzz.xlsx", opt)
+		if err != nil {
+			var e *Error
+			if !errors.As(err, &e) {
+				t.Fatalf("error %T is not *Error: %v", err, err)
+			}
+		}
+	})
+}
+
+// FuzzReadParquet feeds arbitrary bytes to the Parquet path: every
+// failure is an *Error, never a panic.
+func FuzzReadParquet(f *testing.F) {
+	var b bytes.Buffer
+	w := parquet.NewGenericWriter[struct {
+		Y int64   `parquet:"y"`
+		A float64 `parquet:"a"`
+	}](&b)
+	w.Write([]struct {
+		Y int64   `parquet:"y"`
+		A float64 `parquet:"a"`
+	}{{1, 0.5}, {2, -1}, {3, 2}})
+	w.Close()
+	good := b.Bytes()
+	f.Add(good)
+	f.Add(good[:len(good)/2])
+	f.Add([]byte("PAR1PAR1"))
+	opt := Options{Outcome: "y", Predictors: []string{"a"}}
+	f.Fuzz(func(t *testing.T, in []byte) {
+		if len(in) > 1<<16 {
+			return
+		}
+		_, err := Read(bytes.NewReader(in), "fuzz.parquet", opt)
 		if err != nil {
 			var e *Error
 			if !errors.As(err, &e) {

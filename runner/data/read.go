@@ -173,6 +173,18 @@ func readHeader(in io.Reader, name string, d Dialect) ([]string, error) {
 // start sets up the CSV reader, skipping a UTF-8 byte order mark. A
 // compressed, UTF-16, binary or CR-only file is refused, named as such.
 func (r *reader) start(in io.Reader) error {
+	if IsParquet(r.file) {
+		raw, err := io.ReadAll(in)
+		if err != nil {
+			return &Error{File: r.file, Msg: "cannot read file: " + osReason(err), Err: err}
+		}
+		cr, msg := openParquet(raw)
+		if msg != "" {
+			return &Error{File: r.file, Msg: msg}
+		}
+		r.cr = cr
+		return nil
+	}
 	if IsWorkbook(r.file) {
 		raw, err := io.ReadAll(in)
 		if err != nil {
