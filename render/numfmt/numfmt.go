@@ -34,7 +34,12 @@ func Fixed(x float64, d int) string {
 	if math.IsNaN(x) || math.IsInf(x, 0) {
 		return Num(x)
 	}
-	return fmt.Sprintf("%.*f", d, x)
+	s := fmt.Sprintf("%.*f", d, x)
+	// A negative value that rounds to zero reads as zero, not "-0.000".
+	if strings.HasPrefix(s, "-") && strings.Trim(s[1:], "0.") == "" {
+		return s[1:]
+	}
+	return s
 }
 
 // PValue formats a p-value.

@@ -106,3 +106,17 @@ func ExamplePValue() {
 	fmt.Println(PValue(0.03125), PValue(2e-9))
 	// Output: 0.0312 <0.0001
 }
+
+// A negative value that rounds to zero at the shown decimals is written
+// without a sign; a negative value that shows a digit keeps it.
+func TestFixedNegativeZero(t *testing.T) {
+	for _, c := range []struct {
+		x    float64
+		d    int
+		want string
+	}{{-0.0001, 3, "0.000"}, {-0.0004, 3, "0.000"}, {-0.0005001, 3, "-0.001"}, {-0.2, 0, "0"}, {-1.5, 0, "-2"}, {-0.0, 2, "0.00"}} {
+		if got := Fixed(c.x, c.d); got != c.want {
+			t.Errorf("Fixed(%v, %d) = %q, want %q", c.x, c.d, got, c.want)
+		}
+	}
+}
