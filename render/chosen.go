@@ -17,7 +17,12 @@ import (
 func writeChosen(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	res := or.Chosen.Result
 	level, z := confidence(r)
-	d.h(3, "The chosen model: "+or.Chosen.ID)
+	if or.Fallback {
+		d.h(3, "The chosen model: "+or.Chosen.ID+" (the plan's fallback)")
+		d.p("Every candidate was rejected by the rules; this is the fallback model the plan named for that case, not a model that passed the rules. Read its estimates with the rejections in the decision log in mind.")
+	} else {
+		d.h(3, "The chosen model: "+or.Chosen.ID)
+	}
 	d.p("Log-likelihood %s, %d parameters, AIC %s, BIC %s, %s observations. Linear predictor of boundary m: L_m = tau[m] - x'b_m; a positive slope moves the outcome towards higher categories.",
 		numfmt.Fixed(res.LogLik, 4), res.NParams, numfmt.Fixed(res.AIC, 3), numfmt.Fixed(res.BIC, 3), numfmt.Num(res.NObs))
 	grouped := or.Design != nil && !or.Design.Trivial()

@@ -136,7 +136,9 @@ func writeMethods(d *doc, r *runner.Result) {
 		if len(rules) > 0 {
 			s = append(s, "A model was chosen by applying the plan's decision rules in order: "+strings.Join(rules, "; ")+".")
 		}
-		if or.Chosen != nil {
+		if or.Chosen != nil && or.Fallback {
+			s = append(s, fmt.Sprintf("Every candidate was rejected by the rules, so the model reported is %s, the fallback the plan named for that case.", or.Chosen.ID))
+		} else if or.Chosen != nil {
 			s = append(s, fmt.Sprintf("The model retained was %s.", or.Chosen.ID))
 		} else {
 			s = append(s, "No model met every rule.")

@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
+	"path/filepath"
 	"regexp"
 	"strings"
 	"testing"
@@ -225,6 +226,34 @@ func TestCategoryPaletteLightToDark(t *testing.T) {
 				t.Errorf("J=%d: category %d (%s) is not darker than the one before", J, j+1, categoryColor(j, J))
 			}
 			prev = l
+		}
+	}
+}
+
+// A fallback model (every candidate rejected, the plan's fallback reported)
+// is named as such in the chosen model's heading and in the methods
+// paragraph, not only in the decision log.
+func TestFallbackNamedWhereTheChosenModelIs(t *testing.T) {
+	p, err := plan.Load(filepath.Join("testdata", "golden.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := runner.Run(p, runner.Options{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	or := res.Outcomes[0]
+	if or.Chosen == nil {
+		t.Fatal("the golden plan chose no model")
+	}
+	or.Fallback = true
+	md := string(build(res, runner.BuildDecisions(res), nil).markdown())
+	for _, want := range []string{
+		"### The chosen model: " + or.Chosen.ID + " (the plan's fallback)",
+		"so the model reported is " + or.Chosen.ID + ", the fallback the plan named for that case",
+	} {
+		if !strings.Contains(md, want) {
+			t.Errorf("report lacks %q", want)
 		}
 	}
 }
