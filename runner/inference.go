@@ -88,7 +88,7 @@ func runInference(p *plan.Plan, or *OutcomeResult) error {
 				levels[s.Name] = s.Cat.Levels
 			}
 		}
-		rows, err := data.LoadRowsMissing(inf.PredictPath, sources, levels, p.Data.Offset, p.Data.MissingValues, columnMissing(p))
+		rows, err := data.LoadRowsMissing(inf.PredictPath, sources, levels, p.Data.Offset, p.Data.MissingValues, columnMissing(p), p.Data.Dialect())
 		if err != nil {
 			return fmt.Errorf("%s: inference.predict: %v", p.Path, err)
 		}

@@ -1,6 +1,9 @@
 package data
 
 import (
+	"os"
+	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -71,5 +74,38 @@ func TestCheckUTF8(t *testing.T) {
 	}
 	if msg := checkUTF8([]byte("a,b\ncaf\xe9,1\n")); !strings.Contains(msg, "byte 0xe9 on line 2") {
 		t.Errorf("Latin-1: %q", msg)
+	}
+}
+
+// The new rows to predict are read in the data file's dialect: the same
+// rows written with a semicolon and a decimal comma give the same values,
+// and a decimal comma under the default dialect is refused, not misread.
+func TestNewRowsFollowTheDialect(t *testing.T) {
+	dir := t.TempDir()
+	write := func(name, text string) string {
+		p := filepath.Join(dir, name)
+		if err := os.WriteFile(p, []byte(text), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	levels := map[string][]string{"site": {"north", "south"}}
+	base := write("base.csv", "id,a,site\nr1,0.5,north\nr2,-1.25,south\n")
+	semi := write("semi.csv", "id;a;site\nr1;0,5;north\nr2;-1,25;south\n")
+	want, err := LoadRowsMissing(base, []string{"a", "site"}, levels, "", nil, nil, Dialect{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	dl, _ := ParseDialect("semicolon", "comma")
+	got, err := LoadRowsMissing(semi, []string{"a", "site"}, levels, "", nil, nil, dl)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !slices.Equal(got.X, want.X) || !slices.Equal(got.Header, want.Header) || len(got.Cells) != 2 || got.Cells[1][0] != "r2" {
+		t.Errorf("semicolon rows %v %v %v, want %v %v", got.X, got.Header, got.Cells, want.X, want.Header)
+	}
+	comma := write("comma.csv", "id,a,site\nr1,\"0,5\",north\n")
+	if _, err := LoadRowsMissing(comma, []string{"a", "site"}, levels, "", nil, nil, Dialect{}); err == nil || !strings.Contains(err.Error(), "decimal comma") {
+		t.Errorf("a decimal comma under the default dialect: %v", err)
 	}
 }

@@ -35,7 +35,7 @@ func TestColumnMissingCodes(t *testing.T) {
 		t.Errorf("a on line 3 is %g, want -9", ds.X[0])
 	}
 	nr := writeTemp(t, "new.csv", "a,b\n0.1,-9\n0.2,1\n")
-	rows, err := LoadRowsMissing(nr, []string{"a", "b"}, nil, "", nil, map[string][]string{"b": {"-9"}})
+	rows, err := LoadRowsMissing(nr, []string{"a", "b"}, nil, "", nil, map[string][]string{"b": {"-9"}}, Dialect{})
 	if err != nil || len(rows.Skipped) != 1 || rows.Skipped[0] != 2 {
 		t.Fatalf("new rows: %v %+v", err, rows)
 	}

@@ -39,12 +39,13 @@ func LoadRows(path string, predictors []string, offset string, missingTokens []s
 // column in levels must be one of its levels and are stored as the level's
 // index; a level not listed is an error naming the line and column.
 func LoadRowsLevels(path string, predictors []string, levels map[string][]string, offset string, missingTokens []string) (*Rows, error) {
-	return LoadRowsMissing(path, predictors, levels, offset, missingTokens, nil)
+	return LoadRowsMissing(path, predictors, levels, offset, missingTokens, nil, Dialect{})
 }
 
 // LoadRowsMissing is LoadRowsLevels with columns' own missing-value codes
-// (a data dictionary's), besides missingTokens.
-func LoadRowsMissing(path string, predictors []string, levels map[string][]string, offset string, missingTokens []string, columnMissing map[string][]string) (*Rows, error) {
+// (a data dictionary's), besides missingTokens, and the data file's
+// dialect: the new rows are written like the data (delimiter, decimal mark).
+func LoadRowsMissing(path string, predictors []string, levels map[string][]string, offset string, missingTokens []string, columnMissing map[string][]string, dialect Dialect) (*Rows, error) {
 	raw, err := ReadFile(path)
 	if err != nil {
 		return nil, err
@@ -53,7 +54,11 @@ func LoadRowsMissing(path string, predictors []string, levels map[string][]strin
 	raw = bytes.TrimPrefix(raw, utf8BOM)
 	opt := Options{MissingTokens: missingTokens}
 	missing := opt.missingSet()
+	if msg := checkUTF8(raw); msg != "" {
+		return nil, &Error{File: path, Msg: msg}
+	}
 	cr := csv.NewReader(bytes.NewReader(raw))
+	cr.Comma = dialect.delim()
 	head, err := cr.Read()
 	if err == io.EOF {
 		return nil, &Error{File: path, Msg: "the file is empty"}
@@ -116,7 +121,7 @@ func LoadRowsMissing(path string, predictors []string, levels map[string][]strin
 				}
 				v = float64(l)
 			} else {
-				v, msg = parseNumber(cell)
+				v, msg = dialect.number(cell)
 			}
 			if msg != "" {
 				return nil, &Error{File: path, Line: line, Column: c, Msg: msg}
