@@ -2,6 +2,7 @@ package main
 
 import (
 	"errors"
+	"flag"
 	"fmt"
 	"io"
 	"os"
@@ -20,15 +21,9 @@ func cmdFreeze(args []string, stdout, stderr io.Writer) int {
 	fs := newFlags("freeze", stderr)
 	reg := fs.String("registration", "", "identifier of the registration (e.g. the registry's id or DOI), recorded in the lock")
 	replace := fs.Bool("replace", false, "replace an existing lock (the old one is kept as LOCK.replaced-TIME)")
-	planPath, args := leadingArg(args)
-	if stop, code := parseFlags(fs, args); stop {
+	planPath, stop, code := planArg(fs, args, freezeUsage, stderr)
+	if stop {
 		return code
-	}
-	if planPath == "" && fs.NArg() == 1 {
-		planPath = fs.Arg(0)
-	} else if fs.NArg() > 0 || planPath == "" {
-		fmt.Fprintln(stderr, freezeUsage)
-		return exitUsage
 	}
 	if strings.ContainsAny(*reg, "\n\r\t") {
 		fmt.Fprintln(stderr, "ordplan freeze: --registration must be one line of text")
@@ -65,6 +60,24 @@ func cmdFreeze(args []string, stdout, stderr io.Writer) int {
 }
 
 // leadingArg takes a plan path written before the options.
+// planArg reads the one plan path of a command, before or after its flags,
+// and parses the flags. stop is true when the command must end with code:
+// help was asked, a flag was wrong, or there is not exactly one plan path
+// (then usage is printed).
+func planArg(fs *flag.FlagSet, args []string, usage string, stderr io.Writer) (path string, stop bool, code int) {
+	path, args = leadingArg(args)
+	if stop, code := parseFlags(fs, args); stop {
+		return "", true, code
+	}
+	if path == "" && fs.NArg() == 1 {
+		path = fs.Arg(0)
+	} else if fs.NArg() > 0 || path == "" {
+		fmt.Fprintln(stderr, usage)
+		return "", true, exitUsage
+	}
+	return path, false, exitOK
+}
+
 func leadingArg(args []string) (string, []string) {
 	if len(args) > 0 && len(args[0]) > 0 && args[0][0] != '-' {
 		return args[0], args[1:]

@@ -20,15 +20,9 @@ func cmdInit(args []string, stdout, stderr io.Writer) int {
 	dataFile := fs.String("data", "", "CSV data file: its columns are listed with the kind of values found")
 	header := fs.String("header", "", "the columns, comma separated, when there are no data yet")
 	outcome := fs.String("outcome", "", "the ordinal outcome column (default: guessed, marked EDIT)")
-	planPath, args := leadingArg(args)
-	if stop, code := parseFlags(fs, args); stop {
+	planPath, stop, code := planArg(fs, args, initUsage, stderr)
+	if stop {
 		return code
-	}
-	if planPath == "" && fs.NArg() == 1 {
-		planPath = fs.Arg(0)
-	} else if fs.NArg() > 0 || planPath == "" {
-		fmt.Fprintln(stderr, initUsage)
-		return exitUsage
 	}
 	if (*dataFile == "") == (*header == "") {
 		fmt.Fprintln(stderr, "ordplan init: give either --data FILE or --header \"a,b,c\"")

@@ -18,15 +18,9 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 	fs := newFlags("check", stderr)
 	noData := fs.Bool("no-data", false, "check the plan alone, before the data file exists")
 	allow := fs.Bool("allow-unregistered-changes", false, "do not fail on changes from the frozen plan that the plan's deviations list does not explain")
-	planPath, args := leadingArg(args)
-	if stop, code := parseFlags(fs, args); stop {
+	planPath, stop, code := planArg(fs, args, "usage: ordplan check PLAN.yaml [--no-data] [--allow-unregistered-changes]", stderr)
+	if stop {
 		return code
-	}
-	if planPath == "" && fs.NArg() == 1 {
-		planPath = fs.Arg(0)
-	} else if fs.NArg() > 0 || planPath == "" {
-		fmt.Fprintln(stderr, "usage: ordplan check PLAN.yaml [--no-data] [--allow-unregistered-changes]")
-		return exitUsage
 	}
 	var p *plan.Plan
 	var err error
@@ -86,18 +80,9 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	qf := addQueueFlags(fs, "run the fits on ordplan worker processes through the JetStream server at this NATS URL", true)
 	allow := fs.Bool("allow-unregistered-changes", false, "run although the plan departs from its frozen form without a stated reason (the report says so in its first lines)")
 	// Accept the plan before or after the options.
-	var planPath string
-	if len(args) > 0 && len(args[0]) > 0 && args[0][0] != '-' {
-		planPath, args = args[0], args[1:]
-	}
-	if stop, code := parseFlags(fs, args); stop {
+	planPath, stop, code := planArg(fs, args, "usage: ordplan run PLAN.yaml [--out DIR] [--previous DIR] [--workers N] [--queue nats://HOST:PORT]", stderr)
+	if stop {
 		return code
-	}
-	if planPath == "" && fs.NArg() == 1 {
-		planPath = fs.Arg(0)
-	} else if fs.NArg() > 0 || planPath == "" {
-		fmt.Fprintln(stderr, "usage: ordplan run PLAN.yaml [--out DIR] [--previous DIR] [--workers N] [--queue nats://HOST:PORT]")
-		return exitUsage
 	}
 	var qcfg *queue.Config
 	if *qf.url != "" {

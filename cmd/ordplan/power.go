@@ -31,15 +31,9 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 	workers := fs.Int("workers", 0, "replicates run at once (default: all cores); results do not depend on it")
 	quiet := fs.Bool("quiet", false, "no progress lines")
 	qf := addQueueFlags(fs, "run each replicate's fits on ordplan worker processes through the JetStream server at this NATS URL", true)
-	planPath, args := leadingArg(args)
-	if stop, code := parseFlags(fs, args); stop {
+	planPath, stop, code := planArg(fs, args, powerUsage, stderr)
+	if stop {
 		return code
-	}
-	if planPath == "" && fs.NArg() == 1 {
-		planPath = fs.Arg(0)
-	} else if fs.NArg() > 0 || planPath == "" {
-		fmt.Fprintln(stderr, powerUsage)
-		return exitUsage
 	}
 	var ns []int
 	for _, s := range strings.Split(*sizes, ",") {

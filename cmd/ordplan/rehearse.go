@@ -33,15 +33,9 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	n := fs.Int("n", 0, "rows to simulate (default: assumptions.n)")
 	out := fs.String("out", "", "output directory (default: out/<plan name>-rehearsal)")
 	workers := fs.Int("workers", 0, "fits run at once (default: all cores); results do not depend on it")
-	planPath, args := leadingArg(args)
-	if stop, code := parseFlags(fs, args); stop {
+	planPath, stop, code := planArg(fs, args, rehearseUsage, stderr)
+	if stop {
 		return code
-	}
-	if planPath == "" && fs.NArg() == 1 {
-		planPath = fs.Arg(0)
-	} else if fs.NArg() > 0 || planPath == "" {
-		fmt.Fprintln(stderr, rehearseUsage)
-		return exitUsage
 	}
 	p, err := loadForSimulation(planPath)
 	if err != nil {
