@@ -29,20 +29,7 @@ func (r *Result) AverageDifference(name string, X0, X1, offset, w []float64, lev
 	eff := make([]float64, J)
 	jac := make([]float64, J*P)
 	p0, p1 := make([]float64, J), make([]float64, J)
-	tot := 0.0
-	for i := 0; i < n; i++ {
-		wi := 1.0
-		if w != nil {
-			wi = w[i]
-		}
-		if wi == 0 {
-			continue
-		}
-		tot += wi
-		off := 0.0
-		if offset != nil {
-			off = offset[i]
-		}
+	tot := eachWeightedRow(n, w, offset, func(i int, wi, off float64) {
 		x0, x1 := X0[i*K:(i+1)*K], X1[i*K:(i+1)*K]
 		pr.probsAt(r.Estimates, x1, off, p1)
 		g1 := pr.rowJacobian(r.Estimates, x1, off)
@@ -54,7 +41,7 @@ func (r *Result) AverageDifference(name string, X0, X1, offset, w []float64, lev
 				jac[j*P+a] += wi * (g1[j*P+a] - g0[j*P+a])
 			}
 		}
-	}
+	})
 	for j := range eff {
 		eff[j] /= tot
 	}
@@ -88,20 +75,7 @@ func (r *Result) AverageSlope(name string, X, dX, offset, w []float64, level flo
 		B := pr.ly.effects(theta, r.Model.Effects)
 		D := make([]float64, J*(J-1))
 		dL := make([]float64, J-1)
-		tot := 0.0
-		for i := 0; i < n; i++ {
-			wi := 1.0
-			if w != nil {
-				wi = w[i]
-			}
-			if wi == 0 {
-				continue
-			}
-			tot += wi
-			off := 0.0
-			if offset != nil {
-				off = offset[i]
-			}
+		tot := eachWeightedRow(n, w, offset, func(i int, wi, off float64) {
 			x, dx := X[i*K:(i+1)*K], dX[i*K:(i+1)*K]
 			L := pr.rowLinear(theta, x, off)
 			pr.ker.dprobsDL(L, D)
@@ -120,7 +94,7 @@ func (r *Result) AverageSlope(name string, X, dX, offset, w []float64, level flo
 					eff[j] += wi * D[j*(J-1)+m] * dL[m]
 				}
 			}
-		}
+		})
 		for j := range eff {
 			eff[j] /= tot
 		}
@@ -153,4 +127,27 @@ func (r *Result) effectRows(name string, discrete bool, eff, jac []float64, leve
 		out[j] = me
 	}
 	return out
+}
+
+// eachWeightedRow calls f for each of the n rows with a non-zero weight
+// (weights nil: all 1), with the row's weight and offset (offset nil: 0),
+// and returns the sum of the weights: the rows an average is taken over.
+func eachWeightedRow(n int, w, offset []float64, f func(i int, wi, off float64)) float64 {
+	tot := 0.0
+	for i := 0; i < n; i++ {
+		wi := 1.0
+		if w != nil {
+			wi = w[i]
+		}
+		if wi == 0 {
+			continue
+		}
+		tot += wi
+		off := 0.0
+		if offset != nil {
+			off = offset[i]
+		}
+		f(i, wi, off)
+	}
+	return tot
 }
