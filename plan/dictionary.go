@@ -33,30 +33,12 @@ var (
 // decodeDictionary reads `dictionary: {column: {label, unit, range,
 // values, missing}}`, keeping the plan's order of columns.
 func (d *decoder) decodeDictionary(n *yaml.Node) []Entry {
-	n = deref(n)
-	if n.Kind != yaml.MappingNode {
-		d.errorf(n, "dictionary", "want a mapping of column: {label, unit, range, values, missing}, got %s", describe(n))
-		return nil
-	}
 	var out []Entry
-	seen := map[string]int{}
-	for i := 0; i+1 < len(n.Content); i += 2 {
-		k := deref(n.Content[i])
-		if k == nil || k.Kind != yaml.ScalarNode || k.Value == "" {
-			d.errorf(k, "dictionary", "keys must be column names, got %s", describe(k))
-			continue
-		}
-		path := childPath("dictionary", k.Value)
-		if line, dup := seen[k.Value]; dup {
-			d.errorf(k, path, "column is described twice (first at line %d)", line)
-			continue
-		}
-		seen[k.Value] = k.Line
-		d.record(path, n.Content[i+1])
+	d.eachColumn(n, "dictionary", "{label, unit, range, values, missing}", func(k, v *yaml.Node, path string) {
 		e := Entry{Column: k.Value, Key: path}
-		m := d.mapping(n.Content[i+1], path, entryKeys)
+		m := d.mapping(v, path, entryKeys)
 		if m == nil {
-			continue
+			return
 		}
 		m.text("label", &e.Label)
 		m.text("unit", &e.Unit)
@@ -83,8 +65,36 @@ func (d *decoder) decodeDictionary(n *yaml.Node) []Entry {
 			e.Missing, _ = d.readList(v, m.at("missing"), d.token)
 		}
 		out = append(out, e)
-	}
+	})
 	return out
+}
+
+// eachColumn reads a section that maps column names to mappings (the
+// dictionary, the categorical columns): it refuses a section that is not
+// a mapping, an empty or non-text key and a column given twice, records
+// each entry's line, and calls f with the key, the value and its plan path.
+func (d *decoder) eachColumn(n *yaml.Node, section, shape string, f func(k, v *yaml.Node, path string)) {
+	n = deref(n)
+	if n.Kind != yaml.MappingNode {
+		d.errorf(n, section, "want a mapping of column: %s, got %s", shape, describe(n))
+		return
+	}
+	seen := map[string]int{}
+	for i := 0; i+1 < len(n.Content); i += 2 {
+		k := deref(n.Content[i])
+		if k == nil || k.Kind != yaml.ScalarNode || k.Value == "" {
+			d.errorf(k, section, "keys must be column names, got %s", describe(k))
+			continue
+		}
+		path := childPath(section, k.Value)
+		if line, dup := seen[k.Value]; dup {
+			d.errorf(k, path, "column is given twice (first at line %d)", line)
+			continue
+		}
+		seen[k.Value] = k.Line
+		d.record(path, n.Content[i+1])
+		f(k, n.Content[i+1], path)
+	}
 }
 
 // valueRange reads [min, max] with min < max.

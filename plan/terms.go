@@ -31,27 +31,13 @@ var (
 
 // decodeCategorical reads the categorical section: column: {levels, ...}.
 func (d *decoder) decodeCategorical(n *yaml.Node) []CategoricalColumn {
-	n = deref(n)
-	if n.Kind != yaml.MappingNode {
-		d.errorf(n, "categorical", "want a mapping of column: {levels: [...], ...}, got %s", describe(n))
-		return nil
-	}
 	var out []CategoricalColumn
-	seen := map[string]int{}
-	for i := 0; i+1 < len(n.Content); i += 2 {
-		k := deref(n.Content[i])
-		path := childPath("categorical", k.Value)
-		if line, dup := seen[k.Value]; dup {
-			d.errorf(k, path, "column is given twice (first at line %d)", line)
-			continue
-		}
-		seen[k.Value] = k.Line
-		d.record(path, n.Content[i+1])
+	d.eachColumn(n, "categorical", "{levels: [...], ...}", func(k, v *yaml.Node, path string) {
 		c := CategoricalColumn{Column: k.Value, Key: path}
 		c.Coding, c.Unobserved = design.Treatment, design.UnobservedRefuse
-		m := d.mapping(n.Content[i+1], path, categoricalKeys)
+		m := d.mapping(v, path, categoricalKeys)
 		if m == nil {
-			continue
+			return
 		}
 		if v := m.required("levels"); v != nil {
 			if list, ok := d.names(v, m.at("levels")); ok && d.clean(m.at("levels")) {
@@ -78,7 +64,7 @@ func (d *decoder) decodeCategorical(n *yaml.Node) []CategoricalColumn {
 			c.Reference = c.Levels[0]
 		}
 		out = append(out, c)
-	}
+	})
 	return out
 }
 

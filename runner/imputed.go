@@ -314,12 +314,7 @@ func pooledTestBlock(p *plan.Plan, or *OutcomeResult, perSet [][]*FitEntry, appr
 			tb.PerVariable = append(tb.PerVariable, vt)
 		}
 	}
-	pairs := [][2]fit.Structure{
-		{fit.ParallelEffects, fit.ConstrainedEffects}, {fit.ConstrainedEffects, fit.PartialEffects}, {fit.ParallelEffects, fit.PartialEffects},
-		{fit.PartialEffects, fit.NonparallelEffects}, {fit.ParallelEffects, fit.NonparallelEffects},
-		{fit.ParallelEffects, fit.StereotypeEffects}, {fit.StereotypeEffects, fit.NonparallelEffects},
-	}
-	for _, pr := range pairs {
+	for _, pr := range nestedPairs {
 		r, f := cell(pr[0]), cell(pr[1])
 		if r == nil || f == nil || r.Auxiliary && f.Auxiliary {
 			continue

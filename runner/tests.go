@@ -97,12 +97,7 @@ func testBlock(p *plan.Plan, or *OutcomeResult, approach fit.Comparison, link fi
 			tb.PerVariable = append(tb.PerVariable, vt)
 		}
 	}
-	pairs := [][2]fit.Structure{
-		{fit.ParallelEffects, fit.ConstrainedEffects}, {fit.ConstrainedEffects, fit.PartialEffects}, {fit.ParallelEffects, fit.PartialEffects},
-		{fit.PartialEffects, fit.NonparallelEffects}, {fit.ParallelEffects, fit.NonparallelEffects},
-		{fit.ParallelEffects, fit.StereotypeEffects}, {fit.StereotypeEffects, fit.NonparallelEffects},
-	}
-	for _, pr := range pairs {
+	for _, pr := range nestedPairs {
 		r, f := cell(pr[0]), cell(pr[1])
 		if r == nil || f == nil || r.Auxiliary && f.Auxiliary {
 			continue
@@ -150,4 +145,13 @@ func brantTerm(b *fit.BrantResult, d *fit.Data, term fit.Term) fit.Test {
 	t := b.PerVariable[k]
 	t.Name = fit.TestBrant.String()
 	return t
+}
+
+// nestedPairs are the (restricted, full) effect structures of one approach
+// and link compared by nested likelihood-ratio tests, in report order;
+// single and imputed runs use the same list.
+var nestedPairs = [][2]fit.Structure{
+	{fit.ParallelEffects, fit.ConstrainedEffects}, {fit.ConstrainedEffects, fit.PartialEffects}, {fit.ParallelEffects, fit.PartialEffects},
+	{fit.PartialEffects, fit.NonparallelEffects}, {fit.ParallelEffects, fit.NonparallelEffects},
+	{fit.ParallelEffects, fit.StereotypeEffects}, {fit.StereotypeEffects, fit.NonparallelEffects},
 }
