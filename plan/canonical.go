@@ -302,7 +302,7 @@ func canonTerms(terms []design.TermSpec) []any {
 			if tr.PolyRaw {
 				basis = "raw"
 			}
-			m["poly"] = map[string]any{"degree": tr.Poly, "basis": basis}
+			m["polynomial"] = map[string]any{"degree": tr.Poly, "basis": basis}
 		}
 		if tr.Knots != nil {
 			m["spline"] = map[string]any{"knots": tr.Knots}

@@ -24,7 +24,7 @@ var (
 	unobservedWords = []string{design.UnobservedRefuse, design.UnobservedDrop}
 	termKeys        = keysAt("predictors")
 	logKeys         = keysAt("predictors.log")
-	polyKeys        = keysAt("predictors.poly")
+	polyKeys        = keysAt("predictors.polynomial")
 	polyBasisWords  = []string{"orthogonal", "raw"}
 	splineKeys      = keysAt("predictors.spline")
 )
@@ -129,7 +129,7 @@ func (d *decoder) decodeTerm(n *yaml.Node, path string) (design.TermSpec, bool) 
 			d.errorf(deref(v), m.at("interact"), "an interaction needs at least two terms, got %d", len(list))
 		}
 		t.Interact = list
-		for _, k := range []string{"log", "sqrt", "centre", "scale", "poly", "spline"} {
+		for _, k := range []string{"log", "sqrt", "centre", "scale", "polynomial", "spline"} {
 			if m.get(k) != nil {
 				d.errAt(m.at(k), "an interaction multiplies terms as they are; transform a column in its own term and name that term in interact")
 			}
@@ -184,9 +184,9 @@ func (d *decoder) decodeTerm(n *yaml.Node, path string) (design.TermSpec, bool) 
 			parts = append(parts, "s")
 		}
 	}
-	if v := m.get("poly"); v != nil {
+	if v := m.get("polynomial"); v != nil {
 		tr.Poly = 0
-		pm := d.mapping(v, m.at("poly"), polyKeys)
+		pm := d.mapping(v, m.at("polynomial"), polyKeys)
 		if pm != nil {
 			if dg := pm.required("degree"); dg != nil {
 				if k, ok := d.integer(dg, pm.at("degree")); ok {
@@ -201,11 +201,11 @@ func (d *decoder) decodeTerm(n *yaml.Node, path string) (design.TermSpec, bool) 
 			pm.word("basis", "polynomial basis", polyBasisWords, &basis)
 			tr.PolyRaw = basis == "raw"
 		}
-		parts = append(parts, "poly")
+		parts = append(parts, "polynomial")
 	}
 	if v := m.get("spline"); v != nil {
-		if m.get("poly") != nil {
-			d.errAt(m.at("spline"), "give poly or spline, not both")
+		if m.get("polynomial") != nil {
+			d.errAt(m.at("spline"), "give polynomial or spline, not both")
 		}
 		sm := d.mapping(v, m.at("spline"), splineKeys)
 		if sm != nil {

@@ -24,7 +24,7 @@ predictors:
   - grade
   - {column: age, centre: 40, scale: sd, spline: {quantiles: [0.1, 0.5, 0.9]}, name: age_s}
   - {column: dose, log: {shift: 1}, centre: mean}
-  - {column: bmi, poly: {degree: 2, basis: raw}}
+  - {column: bmi, polynomial: {degree: 2, basis: raw}}
   - {interact: [treat, age_s]}
 models: {approaches: [cumulative], effects: [parallel, partial], partial: {free: [treat, site]}}
 rules:
@@ -43,7 +43,7 @@ func TestTermsDecodeAndCanonical(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if got := strings.Join(p.Predictors, " "); got != "treat site grade age_s dose.log.c bmi.poly treat&age_s" {
+	if got := strings.Join(p.Predictors, " "); got != "treat site grade age_s dose.log.c bmi.polynomial treat&age_s" {
 		t.Errorf("terms %q", got)
 	}
 	if got := strings.Join(p.SourceColumns(), " "); got != "treat site grade age dose bmi" {
@@ -73,7 +73,7 @@ func TestTermsDecodeAndCanonical(t *testing.T) {
 // Bad terms are reported at their keys.
 func TestBadTerms(t *testing.T) {
 	for _, c := range []struct{ edit, want string }{
-		{"  - {column: bmi, poly: {degree: 2, basis: raw}}\n", "  - {column: bmi, poly: {degree: 12}}\n"},
+		{"  - {column: bmi, polynomial: {degree: 2, basis: raw}}\n", "  - {column: bmi, polynomial: {degree: 12}}\n"},
 		{"coding: successive}", "coding: successive, reference: \"2\"}"},
 		{"ordered: true, ", ""},
 		{"reference: east", "reference: west"},

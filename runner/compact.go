@@ -20,12 +20,12 @@ const CompactHelp = `Predictor terms, comma separated (quote the whole list for 
   dose|log                    log(dose); dose|log+1 is log(dose + 1)
   dose|sqrt                   square root
   age|centre=mean|scale       centred at the sample mean (or centre=40), divided by the sample SD
-  age|poly=2                  orthogonal polynomial of degree 2 (poly=2raw: raw powers)
+  age|polynomial=2            orthogonal polynomial of degree 2 (polynomial=2raw: raw powers)
   age|spline=30/45/60         natural cubic spline, knots at 30, 45, 60 (first and last are
                               the boundary knots); spline=q0.1/0.5/0.9 puts them at quantiles
   treat&age                   interaction of terms listed before it
   ...|as=name                 names the term (columns derive from it)
-Transformations apply in this order: log or sqrt, centre, scale, poly or spline. Columns are
+Transformations apply in this order: log or sqrt, centre, scale, polynomial or spline. Columns are
 named term, term.level (categorical), term.1, term.2 (polynomial, spline) and a&b (products);
 --nonparallel and --constrained name terms.`
 
@@ -139,14 +139,14 @@ func parseCompactTerm(item string, earlier map[string]bool) (design.TermSpec, *d
 		case k == "scale":
 			t.Scale = true
 			suffix = append(suffix, "s")
-		case k == "poly" && hasV:
+		case k == "polynomial" && hasV:
 			raw := strings.HasSuffix(v, "raw")
 			d, err := strconv.Atoi(strings.TrimSuffix(v, "raw"))
 			if err != nil || d < 1 || d > 10 {
-				return t, nil, fmt.Errorf("poly=%s: want a degree from 1 to 10, optionally followed by raw", v)
+				return t, nil, fmt.Errorf("polynomial=%s: want a degree from 1 to 10, optionally followed by raw", v)
 			}
 			t.Poly, t.PolyRaw = d, raw
-			suffix = append(suffix, "poly")
+			suffix = append(suffix, "polynomial")
 		case k == "spline" && hasV:
 			q := strings.HasPrefix(v, "q")
 			var xs []float64
@@ -216,7 +216,7 @@ func parseCompactTerm(item string, earlier map[string]bool) (design.TermSpec, *d
 		return t, nil, fmt.Errorf("give log or sqrt, not both")
 	}
 	if t.Poly > 0 && t.Spline() {
-		return t, nil, fmt.Errorf("give poly or spline, not both")
+		return t, nil, fmt.Errorf("give polynomial or spline, not both")
 	}
 	if t.Name == "" {
 		t.Name = strings.Join(append([]string{head}, suffix...), ".")
