@@ -326,3 +326,38 @@ func TestParquetGivesIdenticalDecisions(t *testing.T) {
 		t.Errorf("decisions.json differs between the CSV file and the Parquet file")
 	}
 }
+
+// ordplan fit --sheet and --header-row read a workbook as the plan keys
+// data.sheet and data.header_row do: the same fit as from the CSV file.
+func TestFitSheetFlags(t *testing.T) {
+	raw, err := os.ReadFile(filepath.Join("..", "..", "plans", "data", "quietstreets.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	book := filepath.Join(dir, "d.xlsx")
+	if err := os.WriteFile(book, toWorkbook(t, raw), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	args := []string{"--outcome", "safety", "--categories", "very_unsafe,unsafe,neutral,safe,very_safe", "--predictors", "pilot,female,age", "--json"}
+	want, stderr, code := runCLI(append([]string{"fit", "--data", filepath.Join("..", "..", "plans", "data", "quietstreets.csv")}, args...)...)
+	if code != 0 {
+		t.Fatalf("CSV: exit %d: %s", code, stderr)
+	}
+	got, stderr, code := runCLI(append([]string{"fit", "--data", book, "--sheet", "survey", "--header-row", "3"}, args...)...)
+	if code != 0 {
+		t.Fatalf("workbook: exit %d: %s", code, stderr)
+	}
+	if got != want {
+		t.Errorf("the workbook's fit differs from the CSV file's:\n%s\n%s", got, want)
+	}
+	// Without --header-row the title row is taken for the header.
+	_, stderr, code = runCLI(append([]string{"fit", "--data", book, "--sheet", "survey"}, args...)...)
+	if code != 1 || !strings.Contains(stderr, `outcome column not found in the header`) {
+		t.Errorf("workbook without --header-row: exit %d: %s", code, stderr)
+	}
+	_, stderr, code = runCLI(append([]string{"fit", "--data", book, "--sheet", "survey", "--header-row", "0"}, args...)...)
+	if code != 2 || !strings.Contains(stderr, "--header-row must be a sheet row number, 1 or more (got 0)") {
+		t.Errorf("--header-row 0: exit %d: %s", code, stderr)
+	}
+}

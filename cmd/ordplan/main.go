@@ -127,7 +127,8 @@ type fitFlags struct {
 	dataFile, outcome, categories, predictors, direction *string
 	nonparallel, constrained, weights, weightKind        *string
 	cluster, offset, missing, baseline, partitions       *string
-	delimiter, decimal                                   *string
+	delimiter, decimal, sheet                            *string
+	headerRow                                            *int
 	allFree, stereotype, asJSON                          *bool
 	level                                                *float64
 	approach                                             fit.Comparison
@@ -176,7 +177,7 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 // defineFitFlags declares the flags of `ordplan fit` on fs.
 func defineFitFlags(fs *flag.FlagSet) *fitFlags {
 	f := &fitFlags{
-		dataFile:    fs.String("data", "", "CSV file with a header line (required)"),
+		dataFile:    fs.String("data", "", "the data file (required): CSV text with a header line, an .xlsx workbook (*.xlsx) or a flat Parquet file (*.parquet)"),
 		outcome:     fs.String("outcome", "", "outcome column (required)"),
 		categories:  fs.String("categories", "", "the outcome's category labels in order, lowest first (default: integer codes sorted)"),
 		predictors:  fs.String("predictors", "", "predictor terms, comma separated: columns, or the compact forms of categorical columns, transformations and interactions (see below)"),
@@ -195,6 +196,8 @@ func defineFitFlags(fs *flag.FlagSet) *fitFlags {
 		missing:     fs.String("missing", "drop", "rows with a missing value: drop (counted) or refuse"),
 		delimiter:   fs.String("delimiter", "comma", "the character between the data file's fields: comma, semicolon or tab"),
 		decimal:     fs.String("decimal", "point", "the decimal mark of the data file's numbers: point (1.5) or comma (1,5)"),
+		sheet:       fs.String("sheet", "", "for an .xlsx workbook: the worksheet to read (default: the first)"),
+		headerRow:   fs.Int("header-row", 1, "for an .xlsx workbook: the sheet row holding the column names (rows above it are skipped)"),
 		baseline:    fs.String("baseline", "", "also show an adjacent nonparallel logit as baseline-category logits against this category"),
 		level:       fs.Float64("confidence-level", 0.95, "confidence level of the intervals"),
 		asJSON:      fs.Bool("json", false, "print one JSON object instead of the table"),
@@ -230,7 +233,27 @@ func (f *fitFlags) usageProblem(fs *flag.FlagSet) string {
 	if _, err := data.ParseDialect(*f.delimiter, *f.decimal); err != nil {
 		return "--delimiter/--decimal: " + err.Error()
 	}
+	if *f.headerRow < 1 {
+		return fmt.Sprintf("--header-row must be a sheet row number, 1 or more (got %d)", *f.headerRow)
+	}
+	if (*f.sheet != "" || *f.headerRow != 1) && !f.workbooks() {
+		return "--sheet and --header-row are for .xlsx workbooks; the data file is not named *.xlsx"
+	}
 	return ""
+}
+
+// workbooks reports whether the data files are .xlsx workbooks.
+func (f *fitFlags) workbooks() bool {
+	files := runner.SplitList(*f.partitions)
+	if *f.dataFile != "" {
+		files = append(files, *f.dataFile)
+	}
+	for _, p := range files {
+		if !data.IsWorkbook(p) {
+			return false
+		}
+	}
+	return len(files) > 0
 }
 
 // single is the model and data the flags describe.
@@ -248,6 +271,7 @@ func (f *fitFlags) single() (runner.SingleFit, error) {
 		Link: f.link, Nonparallel: runner.SplitList(*f.nonparallel), Weights: *f.weights, Offset: *f.offset,
 		Refuse: *f.missing == "refuse", Covariance: f.covariance, Cluster: *f.cluster, Sampling: *f.weightKind == "sampling"}
 	s.Dialect, _ = data.ParseDialect(*f.delimiter, *f.decimal) // checked in usageProblem
+	s.Dialect.Sheet, s.Dialect.HeaderRow = *f.sheet, *f.headerRow
 	if *f.allFree {
 		s.Nonparallel = s.Predictors
 	}

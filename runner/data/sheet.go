@@ -55,7 +55,7 @@ func openSheet(raw []byte, d Dialect) (*sheetRecords, string) {
 	if sheet == "" {
 		sheet = sheets[0]
 	} else if idx, _ := f.GetSheetIndex(sheet); idx < 0 {
-		return nil, fmt.Sprintf("workbook has no sheet %s (data.sheet); its sheets: %s", quoteCell(sheet), quoteList(sheets))
+		return nil, fmt.Sprintf("workbook has no sheet %s (data.sheet, or --sheet); its sheets: %s", quoteCell(sheet), quoteList(sheets))
 	}
 	rows, err := f.GetRows(sheet, excelize.Options{RawCellValue: true})
 	if err != nil {
@@ -63,7 +63,7 @@ func openSheet(raw []byte, d Dialect) (*sheetRecords, string) {
 	}
 	h := max(d.HeaderRow, 1)
 	if h > len(rows) {
-		return nil, fmt.Sprintf("sheet %s has %d rows, so no header in row %d (data.header_row)", quoteCell(sheet), len(rows), h)
+		return nil, fmt.Sprintf("sheet %s has %d rows, so no header in row %d (data.header_row, or --header-row)", quoteCell(sheet), len(rows), h)
 	}
 	return &sheetRecords{rows: rows[h-1:], first: h}, ""
 }
