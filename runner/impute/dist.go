@@ -29,3 +29,12 @@ func TSurvival2(z, df float64) float64 {
 	}
 	return 2 * distuv.StudentsT{Mu: 0, Sigma: 1, Nu: df}.Survival(math.Abs(z))
 }
+
+// TQuantile is the quantile at probability pr of t on df degrees of
+// freedom (the normal's when df is +Inf).
+func TQuantile(pr, df float64) float64 {
+	if math.IsInf(df, 1) || df > 1e7 {
+		return distuv.UnitNormal.Quantile(pr)
+	}
+	return distuv.StudentsT{Mu: 0, Sigma: 1, Nu: df}.Quantile(pr)
+}

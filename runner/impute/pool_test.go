@@ -10,6 +10,8 @@ import (
 
 	"ordplan/internal/rscript"
 	"ordplan/runner/fit"
+
+	"gonum.org/v1/gonum/stat/distuv"
 )
 
 func near(t *testing.T, what string, got, want, tol float64) {
@@ -243,4 +245,81 @@ func TestAgainstMice(t *testing.T) {
 	near(t, "D3 p", d3.P, r[3], 1e-6)
 	near(t, "D3 r", d3.RIV, r[4], 1e-6)
 	t.Logf("pooled x2: %.6g (se %.4g, df %.4g, fmi %.4g); D3 at the pooled estimates F(1, %.4g) = %.6g, p = %.4g; with mice's deviances F(1, %.4g) = %.6g", p.Estimate[2], p.SE[2], p.DF[2], p.FMI[2], ours.DF2, ours.F, ours.P, d3.DF2, d3.F)
+}
+
+// TestPoolScalar: one quantity pooled on its own is Pool of a one-parameter
+// analysis; identical sets give zero between variance and the set's own
+// normal interval (infinite degrees of freedom).
+func TestPoolScalar(t *testing.T) {
+	q, u := []float64{0.21, 0.26, 0.19, 0.24}, []float64{0.0009, 0.0011, 0.001, 0.0012}
+	s, err := PoolScalar(q, u, 250)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sets := make([]Set, len(q))
+	for i := range q {
+		sets[i] = Set{Est: []float64{q[i]}, Cov: []float64{u[i]}}
+	}
+	p, _ := Pool(sets, 250)
+	near(t, "estimate", s.Estimate, p.Estimate[0], 1e-15)
+	near(t, "total", s.Total, p.Total[0], 1e-15)
+	near(t, "df", s.DF, p.DF[0], 1e-15)
+	near(t, "fmi", s.FMI, p.FMI[0], 1e-15)
+	lo, hi, pv := s.Interval(0.95)
+	h := TQuantile(0.975, s.DF) * s.SE
+	near(t, "interval", hi-lo, 2*h, 1e-14)
+	near(t, "p", pv, TSurvival2(s.Estimate/s.SE, s.DF), 1e-15)
+
+	same, _ := PoolScalar([]float64{0.3, 0.3, 0.3}, []float64{0.01, 0.01, 0.01}, math.Inf(1))
+	if same.Between != 0 || same.RIV != 0 || !math.IsInf(same.DF, 1) {
+		t.Errorf("identical sets: %+v", same)
+	}
+	lo, hi, _ = same.Interval(0.95)
+	near(t, "normal interval", hi, 0.3+1.959963984540054*0.1, 1e-12)
+	near(t, "normal interval", lo, 0.3-1.959963984540054*0.1, 1e-12)
+}
+
+// TestD2: identical statistics give the chi-square test of one set (r = 0,
+// infinite denominator degrees of freedom); statistics 1, 4, 9 on 1 df
+// (square roots 1, 2, 3) give, worked by hand from the formula,
+// r = (4/3) 1, D2 = (14/3 - 2 (4/3)) / (7/3) = 6/7 and v = 2 (7/4)^2 = 49/8;
+// with identical sets D2 equals D1 of the same Wald statistic.
+func TestD2(t *testing.T) {
+	d, err := D2([]float64{7.3, 7.3, 7.3, 7.3}, 3)
+	if err != nil {
+		t.Fatal(err)
+	}
+	near(t, "D2 of identical sets", d.F, 7.3/3, 1e-15)
+	near(t, "p", d.P, distChi2Survival(7.3, 3), 1e-12)
+	if !math.IsInf(d.DF2, 1) || d.RIV != 0 || d.Method != "D2" {
+		t.Errorf("identical sets: %+v", d)
+	}
+	d, _ = D2([]float64{1, 4, 9}, 1)
+	near(t, "r", d.RIV, 4.0/3, 1e-15)
+	near(t, "D2", d.F, 6.0/7, 1e-15)
+	near(t, "v", d.DF2, 49.0/8, 1e-14)
+	near(t, "p", d.P, distFSurvival(6.0/7, 1, 49.0/8), 1e-15)
+
+	s := Set{Est: []float64{0.4, -0.2}, Cov: []float64{0.02, 0.005, 0.005, 0.03}}
+	p, _ := Pool([]Set{s, s, s}, math.Inf(1))
+	d1, _ := D1(p, []float64{1, 0, 0, 1}, nil)
+	wald := d1.F * 2
+	d2, _ := D2([]float64{wald, wald, wald}, 2)
+	near(t, "D2 = D1 on identical sets", d2.F, d1.F, 1e-14)
+	near(t, "D2 p = D1 p", d2.P, d1.P, 1e-12)
+
+	if d, _ := D2([]float64{0.01, 25, 0.01}, 1); d.F != 0 || d.P != 1 || d.Warnings == "" {
+		t.Errorf("negative D2 not set to 0: %+v", d)
+	}
+	if _, err := D2([]float64{3}, 1); err == nil {
+		t.Error("D2 of one set")
+	}
+	if _, err := D2([]float64{3, math.NaN()}, 1); err == nil {
+		t.Error("D2 of a NaN")
+	}
+}
+
+func distChi2Survival(x float64, k int) float64 { return fSurvival(x/float64(k), k, math.Inf(1)) }
+func distFSurvival(f float64, k int, v float64) float64 {
+	return distuv.F{D1: float64(k), D2: v}.Survival(f)
 }
