@@ -5,6 +5,7 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"fmt"
+	"math"
 	"strconv"
 	"strings"
 
@@ -76,6 +77,10 @@ func writeNewRows(d *doc, or *runner.OutcomeResult) {
 	}
 	d.p("The chosen model's predictions for the %d rows of `%s` (%d rows read, %d skipped for a missing value) are in `%s`: for each row its line in the file and the file's own columns (so a row label travels with its predictions), the category probabilities (`prob_CATEGORY`), the cumulative probabilities P(y <= m) (`cumprob_CATEGORY`), the expected category (`expected`, categories scored 1 to %d), the most likely category and the linear predictors (`linear_m`), each number with its delta-method standard error (`se_...`). Rows with a negative predicted probability: %d.",
 		nr.Rows.N, nr.File, nr.Rows.RowsRead, len(nr.Rows.Skipped), predictionsFile(or), len(or.Data.Categories), neg)
+	if nr.DF != nil {
+		d.p("On imputed data each number was predicted on each of the %d imputed sets by that set's fit and pooled by Rubin's rules: the prediction is the mean over the sets, its standard error the square root of the mean squared delta-method error plus (1 + 1/%d) times the variance between the sets, and each standard error is followed by its Barnard-Rubin degrees of freedom (`df_...`, empty when the sets agree) for t-based intervals. The most likely category is that of the pooled probabilities; a row is flagged negative when a pooled probability or any set's is.",
+			or.Imputed.M, or.Imputed.M)
+	}
 }
 
 // predictionsFile names the predictions file of an outcome: the column
@@ -111,17 +116,27 @@ func predictionsCSV(or *runner.OutcomeResult) []byte {
 	lv := or.Data.Categories
 	J, q := pr.J, pr.J-1
 	cat := csvNames(lv)
+	// On imputed data every standard error is followed by the pooled
+	// degrees of freedom (df_..., empty when infinite).
+	df := nr.DF
 	var head []string
 	head = append(head, "line")
+	pair := func(name string) {
+		head = append(head, name, "se_"+name)
+		if df != nil {
+			head = append(head, "df_"+name)
+		}
+	}
 	for _, c := range cat {
-		head = append(head, "prob_"+c, "se_prob_"+c)
+		pair("prob_" + c)
 	}
 	for m := 0; m < q; m++ {
-		head = append(head, "cumprob_"+cat[m], "se_cumprob_"+cat[m])
+		pair("cumprob_" + cat[m])
 	}
-	head = append(head, "expected", "se_expected", "most_likely")
+	pair("expected")
+	head = append(head, "most_likely")
 	for m := 1; m <= q; m++ {
-		head = append(head, fmt.Sprintf("linear_%d", m), fmt.Sprintf("se_linear_%d", m))
+		pair(fmt.Sprintf("linear_%d", m))
 	}
 	head = append(head, "negative")
 	ours := map[string]bool{}
@@ -140,6 +155,19 @@ func predictionsCSV(or *runner.OutcomeResult) []byte {
 	head = append(head[:1], append(in, head[1:]...)...)
 	var b bytes.Buffer
 	f := func(x float64) string { return strconv.FormatFloat(x, 'g', 10, 64) }
+	num := func(v, se float64, dfs []float64, a int) {
+		b.WriteString("," + f(v) + "," + f(se))
+		if df != nil {
+			b.WriteString(",")
+			if !math.IsInf(dfs[a], 1) {
+				b.WriteString(f(dfs[a]))
+			}
+		}
+	}
+	var dProb, dCum, dExp, dLin []float64
+	if df != nil {
+		dProb, dCum, dExp, dLin = df.Prob, df.Cum, df.Expected, df.Linear
+	}
 	b.WriteString(strings.Join(head, ",") + "\n")
 	for i := 0; i < pr.N; i++ {
 		b.WriteString(strconv.Itoa(nr.Rows.Lines[i]))
@@ -147,14 +175,15 @@ func predictionsCSV(or *runner.OutcomeResult) []byte {
 			b.WriteString("," + csvCell(c))
 		}
 		for j := 0; j < J; j++ {
-			b.WriteString("," + f(pr.Prob[i*J+j]) + "," + f(pr.SE[i*J+j]))
+			num(pr.Prob[i*J+j], pr.SE[i*J+j], dProb, i*J+j)
 		}
 		for m := 0; m < q; m++ {
-			b.WriteString("," + f(pr.Cum[i*q+m]) + "," + f(pr.CumSE[i*q+m]))
+			num(pr.Cum[i*q+m], pr.CumSE[i*q+m], dCum, i*q+m)
 		}
-		b.WriteString("," + f(pr.Expected[i]) + "," + f(pr.ExpectedSE[i]) + "," + csvCell(lv[pr.MostLikely[i]]))
+		num(pr.Expected[i], pr.ExpectedSE[i], dExp, i)
+		b.WriteString("," + csvCell(lv[pr.MostLikely[i]]))
 		for m := 0; m < q; m++ {
-			b.WriteString("," + f(pr.Linear[i*q+m]) + "," + f(pr.LinearSE[i*q+m]))
+			num(pr.Linear[i*q+m], pr.LinearSE[i*q+m], dLin, i*q+m)
 		}
 		fmt.Fprintf(&b, ",%t\n", pr.Negative[i])
 	}

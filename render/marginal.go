@@ -2,6 +2,7 @@ package render
 
 import (
 	"fmt"
+	"math"
 	"strings"
 
 	"ordplan/render/numfmt"
@@ -39,8 +40,15 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		for _, n := range set.Notes {
 			d.p("%s", n)
 		}
+		head := []string{"Predictor", "Change", "Category", "Effect", "Std. error", "z", "p", pct(level) + " low", pct(level) + " high"}
+		if set.Pooling != nil {
+			d.p("On imputed data these effects were computed on each of the %d imputed sets (with that set's fit, and for averages and means that set's rows) and pooled by Rubin's rules: the effect is the mean over the sets, its standard error the square root of the mean squared delta-method error plus (1 + 1/%d) times the variance between the sets; p-values and intervals use t on the Barnard-Rubin degrees of freedom (df; inf when the sets agree), and FMI is the fraction of missing information.%s",
+				or.Imputed.M, or.Imputed.M, pooledPoint(set))
+			head[5] = "t"
+			head = append(head, "df", "FMI")
+		}
 		var rows [][]string
-		for _, me := range set.Effects {
+		for e, me := range set.Effects {
 			change := "per unit"
 			if me.Discrete {
 				change = "0 to 1"
@@ -48,10 +56,19 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			if me.Change != "" {
 				change = me.Change
 			}
-			rows = append(rows, []string{me.Predictor, change, me.Category, numfmt.Est(me.Effect), numfmt.Est(me.SE),
-				numfmt.Z(me.Z), numfmt.PValue(me.P), numfmt.Est(me.Low), numfmt.Est(me.High)})
+			row := []string{me.Predictor, change, me.Category, numfmt.Est(me.Effect), numfmt.Est(me.SE),
+				numfmt.Z(me.Z), numfmt.PValue(me.P), numfmt.Est(me.Low), numfmt.Est(me.High)}
+			if set.Pooling != nil {
+				pp := set.Pooling[e]
+				df := math.Inf(1)
+				if pp.DF != nil {
+					df = *pp.DF
+				}
+				row = append(row, dfCell(df), numfmt.Fixed(pp.FMI, 3))
+			}
+			rows = append(rows, row)
 		}
-		d.table([]string{"Predictor", "Change", "Category", "Effect", "Std. error", "z", "p", pct(level) + " low", pct(level) + " high"}, rows)
+		d.table(head, rows)
 	}
 }
 
@@ -95,4 +112,13 @@ func atCategorical(note string) string {
 		return ""
 	}
 	return " Categorical predictors are at their reference level unless the plan sets one (inference.profile);" + strings.TrimPrefix(note, " Effects are per column of the data, not per column of the model:")
+}
+
+// pooledPoint says where the point of pooled effects at one point comes
+// from.
+func pooledPoint(set runner.MarginalSet) string {
+	if set.Point == nil {
+		return ""
+	}
+	return " The point shown is the mean of the sets' points: each set's effects are at that set's own means."
 }

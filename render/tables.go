@@ -246,12 +246,29 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	// Marginal effects.
 	if len(or.Marginal) > 0 {
 		rows = nil
+		head := []string{"kind", "predictor", "category", "discrete_change", "effect", "std_error", "z", "p", "low_" + lv, "high_" + lv}
+		about := "marginal effects of the chosen model with " + lv + "% intervals"
+		if or.Imputed != nil {
+			head = append(head, "df", "fmi")
+			about += ", pooled over the imputed sets (t intervals on df; df empty when infinite)"
+		}
 		for _, set := range or.Marginal {
-			for _, me := range set.Effects {
-				rows = append(rows, []string{set.Kind, me.Predictor, me.Category, strconv.FormatBool(me.Discrete), csvNum(me.Effect), csvNum(me.SE), csvNum(me.Z), csvNum(me.P), csvNum(me.Low), csvNum(me.High)})
+			for e, me := range set.Effects {
+				row := []string{set.Kind, me.Predictor, me.Category, strconv.FormatBool(me.Discrete), csvNum(me.Effect), csvNum(me.SE), csvNum(me.Z), csvNum(me.P), csvNum(me.Low), csvNum(me.High)}
+				if or.Imputed != nil {
+					row = append(row, "", "")
+					if e < len(set.Pooling) {
+						pp := set.Pooling[e]
+						if pp.DF != nil {
+							row[len(row)-2] = csvNum(*pp.DF)
+						}
+						row[len(row)-1] = csvNum(pp.FMI)
+					}
+				}
+				rows = append(rows, row)
 			}
 		}
-		add("marginal-effects", "marginal effects of the chosen model with "+lv+"% intervals", []string{"kind", "predictor", "category", "discrete_change", "effect", "std_error", "z", "p", "low_" + lv, "high_" + lv}, rows)
+		add("marginal-effects", about, head, rows)
 	}
 	// Predicted probabilities over the focus predictor.
 	if pf, err := newProfile(or, focusName(r), nil); err == nil {

@@ -25,8 +25,12 @@ type ImputedRun struct {
 	Files  []string // the file(s) as the plan names them
 	Column string   // imputation-number column (stacked)
 	Rows   int      // rows used in each set
-	// Sets are the imputed sets' fit inputs, in imputation order.
-	Sets []*fit.Data `json:"-"`
+	// Sets are the imputed sets' fit inputs, in imputation order, Data
+	// their rows as read, and Fits the grid fitted on each (by set, then
+	// in the order of OutcomeResult.Fits).
+	Sets []*fit.Data     `json:"-"`
+	Data []*data.Dataset `json:"-"`
+	Fits [][]*FitEntry   `json:"-"`
 }
 
 // imputedSets reads the imputed sets of an outcome, checks that they are
@@ -96,6 +100,7 @@ func imputedSets(p *plan.Plan, oc plan.Outcome) (*ImputedRun, []*data.Dataset, *
 		}
 	}
 	run.Rows = sets[0].N
+	run.Data = sets
 	dz, d0, err := buildDesign(spec, sets[0])
 	if err != nil {
 		return nil, nil, nil, fmt.Errorf("%s: %v (imputed set 1, outcome %q)", p.Path, err, oc.Column)
@@ -226,11 +231,7 @@ func poolJobs(p *plan.Plan, sets []*data.Dataset, jobs []*FitEntry, run *Imputed
 			continue
 		}
 		first := perSet[0][i].Result
-		dfc := first.NObs - float64(first.NParams)
-		if !(dfc > 0) {
-			dfc = math.Inf(1)
-		}
-		pl, err := impute.Pool(sets, dfc)
+		pl, err := impute.Pool(sets, completeDF(first))
 		if err != nil {
 			e.Err = err.Error()
 			continue
@@ -436,6 +437,7 @@ func runImputedOutcome(p *plan.Plan, oc plan.Outcome, opt Options) (*OutcomeResu
 	or.Notes = append(or.Notes, notes...)
 	perSet := poolJobs(p, sets, jobs, run, fopt, opt, oc.Column)
 	or.Fits = jobs
+	run.Fits = perSet
 	for _, a := range p.Models.Approaches {
 		for _, l := range p.Models.Links {
 			or.Tests = append(or.Tests, pooledTestBlock(p, or, perSet, a, l))
@@ -445,8 +447,11 @@ func runImputedOutcome(p *plan.Plan, oc plan.Outcome, opt Options) (*OutcomeResu
 	for _, h := range p.Inference.Hypotheses {
 		or.Hypotheses = append(or.Hypotheses, hypothesisTests(h, or)...)
 	}
-	or.Notes = append(or.Notes, fmt.Sprintf("Analysed on %d imputed data sets, pooled by Rubin's rules; log-likelihoods, AIC and BIC are means over the sets, and rules on AIC or BIC compare those means; the plan's hypotheses are pooled Wald tests (D1)", run.M),
-		"Overall fit, goodness of fit, marginal effects and predictions are not computed on imputed data")
+	if err := runPooledInference(p, or); err != nil {
+		return nil, err
+	}
+	or.Notes = append(or.Notes, fmt.Sprintf("Analysed on %d imputed data sets, pooled by Rubin's rules; log-likelihoods, AIC and BIC are means over the sets, and rules on AIC or BIC compare those means; the plan's hypotheses are pooled Wald tests (D1); marginal effects and predictions are computed on each set and pooled by Rubin's rules", run.M),
+		"Overall fit and goodness of fit are not computed on imputed data")
 	return or, nil
 }
 

@@ -6,10 +6,12 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
 	"ordplan/plan"
+	"ordplan/runner/impute"
 )
 
 // imputedFixture writes an invented survey (seeded): y in three ordered
@@ -80,8 +82,11 @@ rules:
   - choose: {by: bic}
 inference:
   hypotheses: ["x2 = 0"]
+  marginal_effects: [average, means]
+  predict: new.csv
 `
 	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644)
+	os.WriteFile(filepath.Join(dir, "new.csv"), []byte("x1,x2\n0,0\n1.5,-0.5\n-1,2\n"), 0o644)
 	return plan.Load(filepath.Join(dir, "p.yaml"))
 }
 
@@ -134,6 +139,47 @@ func TestImputedIdenticalSets(t *testing.T) {
 			t.Errorf("hypothesis in %s: D1 %+v vs single-set Wald %+v", h.Model, h.Test, g.Test)
 		}
 	}
+	// Marginal effects and predictions pooled over identical sets are the
+	// single-set ones with zero between variance; their degrees of freedom
+	// are Barnard and Rubin's with lambda = 0, (n+1)/(n+3) n for the
+	// complete-data n = observations - parameters, and intervals use t.
+	chosen := oi.Chosen.Result
+	dfc := chosen.NObs - float64(chosen.NParams)
+	dfObs := (dfc + 1) / (dfc + 3) * dfc
+	tq := impute.TQuantile(0.975, dfObs)
+	if len(oi.Marginal) != 2 || len(oi.Marginal) != len(os1.Marginal) {
+		t.Fatalf("marginal effects: %d pooled, %d single", len(oi.Marginal), len(os1.Marginal))
+	}
+	for s, set := range oi.Marginal {
+		g := os1.Marginal[s]
+		if set.Error != "" || len(set.Effects) != len(g.Effects) || len(set.Pooling) != len(set.Effects) || len(set.Effects) == 0 {
+			t.Fatalf("%s: %+v", set.Kind, set)
+		}
+		for e, me := range set.Effects {
+			w := g.Effects[e]
+			for _, c := range [][2]float64{{me.Effect, w.Effect}, {me.SE, w.SE}, {me.Low, w.Effect - tq*w.SE}, {me.High, w.Effect + tq*w.SE}, {me.P, impute.TSurvival2(w.Z, dfObs)}} {
+				if math.Abs(c[0]-c[1]) > 1e-9 {
+					t.Errorf("%s %s %s: pooled %+v, single %+v", set.Kind, me.Predictor, me.Category, me, w)
+					break
+				}
+			}
+			if pp := set.Pooling[e]; pp.Between > 1e-28 || pp.DF == nil || math.Abs(*pp.DF-dfObs) > 1e-9 {
+				t.Errorf("%s %s: between %g, df %v; want 0 and %g", set.Kind, me.Predictor, pp.Between, pp.DF, dfObs)
+			}
+		}
+	}
+	pn, sn := oi.NewRows, os1.NewRows
+	if pn == nil || pn.Pred == nil || pn.DF == nil || sn == nil || sn.Pred == nil {
+		t.Fatalf("predictions: pooled %+v, single %+v", pn, sn)
+	}
+	for a := range sn.Pred.Prob {
+		if math.Abs(pn.Pred.Prob[a]-sn.Pred.Prob[a]) > 1e-9 || math.Abs(pn.Pred.SE[a]-sn.Pred.SE[a]) > 1e-9 || math.Abs(pn.DF.Prob[a]-dfObs) > 1e-9 {
+			t.Errorf("prediction %d: pooled %g (se %g, df %g), single %g (se %g)", a, pn.Pred.Prob[a], pn.Pred.SE[a], pn.DF.Prob[a], sn.Pred.Prob[a], sn.Pred.SE[a])
+		}
+	}
+	if !slices.Equal(pn.Pred.MostLikely, sn.Pred.MostLikely) {
+		t.Errorf("most likely %v vs %v", pn.Pred.MostLikely, sn.Pred.MostLikely)
+	}
 	if oi.Data.Missing == nil || oi.Data.Missing.ByColumn[2] == 0 {
 		t.Errorf("the missing values of the original file are not described: %+v", oi.Data.Missing)
 	}
@@ -159,6 +205,43 @@ func TestImputedDifferentSets(t *testing.T) {
 	rec := imputationRecord(or)
 	if rec == nil || rec.Sets != 5 || len(rec.Pooling) != 2 || rec.Pooling[0].Parameters[j].FMI != f.Pooled.FMI[j] {
 		t.Errorf("decisions.json imputation record %+v", rec)
+	}
+	// Pooled marginal effects by hand from the per-set effects.
+	fits, err := or.chosenPerSet()
+	if err != nil {
+		t.Fatal(err)
+	}
+	avg := or.Marginal[0]
+	q, u := make([]float64, len(fits)), make([]float64, len(fits))
+	for e, me := range avg.Effects {
+		var mean, w, b float64
+		for k, r := range fits {
+			s := marginalSet(p, or.onSet(k), r, "average").Effects[e]
+			q[k], u[k] = s.Effect, s.SE*s.SE
+			mean += s.Effect / 5
+			w += s.SE * s.SE / 5
+		}
+		for _, v := range q {
+			b += (v - mean) * (v - mean) / 4
+		}
+		if math.Abs(me.Effect-mean) > 1e-12 || math.Abs(me.SE-math.Sqrt(w+1.2*b)) > 1e-12 {
+			t.Errorf("average effect %s %s: %g (se %g), by hand %g (se %g)", me.Predictor, me.Category, me.Effect, me.SE, mean, math.Sqrt(w+1.2*b))
+		}
+		if pp := avg.Pooling[e]; pp.DF == nil || !(pp.FMI > 0) {
+			t.Errorf("average effect %s %s: df %v fmi %g", me.Predictor, me.Category, pp.DF, pp.FMI)
+		}
+	}
+	if or.NewRows == nil || or.NewRows.Error != "" || or.NewRows.DF == nil {
+		t.Fatalf("predictions %+v", or.NewRows)
+	}
+	for i := 0; i < or.NewRows.Pred.N; i++ {
+		s := 0.0
+		for j := 0; j < or.NewRows.Pred.J; j++ {
+			s += or.NewRows.Pred.Prob[i*or.NewRows.Pred.J+j]
+		}
+		if math.Abs(s-1) > 1e-12 {
+			t.Errorf("pooled probabilities of row %d sum to %g", i, s)
+		}
 	}
 	if len(or.Hypotheses) == 0 || or.Hypotheses[0].Test.Pooled != "D1" || !or.Hypotheses[0].Test.OK {
 		t.Errorf("hypothesis on imputed data: %+v", or.Hypotheses)

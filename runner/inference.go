@@ -33,6 +33,10 @@ type MarginalSet struct {
 	Error       string               `json:"error,omitempty"`
 	// Notes name the columns whose effects could not be computed, and why.
 	Notes []string `json:"notes,omitempty"`
+	// Pooling is Rubin's rules for each effect on imputed data (one per
+	// effect, in order); the effects then hold the pooled values, with
+	// t-based p-values and intervals.
+	Pooling []PoolingParam `json:"pooling,omitempty"`
 }
 
 // NewRows are the chosen model's predictions for the plan's new rows.
@@ -44,6 +48,9 @@ type NewRows struct {
 	// values with the constants frozen from the fitted data.
 	Design []float64 `json:"-"`
 	Error  string    `json:"error,omitempty"`
+	// DF are the degrees of freedom of the pooled predictions on imputed
+	// data (nil otherwise).
+	DF *PredictionDF `json:"-"`
 }
 
 // runInference computes what the plan's inference section asks for.
@@ -56,54 +63,71 @@ func runInference(p *plan.Plan, or *OutcomeResult) error {
 		return nil
 	}
 	res := or.Chosen.Result
-	level := p.Report.ConfidenceLevel
 	for _, kind := range inf.MarginalEffects {
-		set := MarginalSet{Kind: kind}
-		var err error
-		switch kind {
-		case "average":
-			set.Effects, set.Notes, err = sourceEffects(or, res, or.Data.X, or.Data.N, or.Data.Offset, or.Data.Weights, level)
-		default:
-			raw := or.representative(inf.Profile, kind == "profile")
-			set.Point = raw
-			set.PointLevels = or.levelsAt(raw)
-			var off []float64
-			if or.Data.Offset != nil {
-				off = []float64{weightedMean(or.Data.Offset, or.Data.Weights)}
-			}
-			set.Effects, set.Notes, err = sourceEffects(or, res, raw, 1, off, nil, level)
-		}
-		if err != nil {
-			set.Error = err.Error()
-		}
-		or.Marginal = append(or.Marginal, set)
+		or.Marginal = append(or.Marginal, marginalSet(p, or, res, kind))
 	}
 	if inf.PredictPath != "" {
-		nr := &NewRows{File: inf.Predict}
-		sources := make([]string, len(or.Design.Sources))
-		levels := map[string][]string{}
-		for i, s := range or.Design.Sources {
-			sources[i] = s.Name
-			if s.Cat != nil {
-				levels[s.Name] = s.Cat.Levels
-			}
-		}
-		rows, err := data.LoadRowsMissing(inf.PredictPath, sources, levels, p.Data.Offset, p.Data.MissingValues, columnMissing(p), p.Data.Dialect())
+		nr, err := readNewRows(p, or)
 		if err != nil {
-			return fmt.Errorf("%s: inference.predict: %v", p.Path, err)
+			return err
 		}
-		nr.Rows = rows
-		X, i, err := or.Design.Matrix(rows.X, rows.N)
-		if err != nil {
-			return fmt.Errorf("%s: inference.predict: %s:%d: %v", p.Path, rows.File, rows.Lines[i], err)
-		}
-		nr.Design = X
-		if nr.Pred, err = res.Predict(X, rows.Offset); err != nil {
+		if nr.Pred, err = res.Predict(nr.Design, nr.Rows.Offset); err != nil {
 			nr.Error = err.Error()
 		}
 		or.NewRows = nr
 	}
 	return nil
+}
+
+// marginalSet computes one kind of marginal effects (average, means,
+// profile) of fit res on the outcome's data.
+func marginalSet(p *plan.Plan, or *OutcomeResult, res *fit.Result, kind string) MarginalSet {
+	level := p.Report.ConfidenceLevel
+	set := MarginalSet{Kind: kind}
+	var err error
+	switch kind {
+	case "average":
+		set.Effects, set.Notes, err = sourceEffects(or, res, or.Data.X, or.Data.N, or.Data.Offset, or.Data.Weights, level)
+	default:
+		raw := or.representative(p.Inference.Profile, kind == "profile")
+		set.Point = raw
+		set.PointLevels = or.levelsAt(raw)
+		var off []float64
+		if or.Data.Offset != nil {
+			off = []float64{weightedMean(or.Data.Offset, or.Data.Weights)}
+		}
+		set.Effects, set.Notes, err = sourceEffects(or, res, raw, 1, off, nil, level)
+	}
+	if err != nil {
+		set.Error = err.Error()
+	}
+	return set
+}
+
+// readNewRows reads the plan's new rows and makes their design with the
+// constants frozen from the fitted data.
+func readNewRows(p *plan.Plan, or *OutcomeResult) (*NewRows, error) {
+	inf := p.Inference
+	nr := &NewRows{File: inf.Predict}
+	sources := make([]string, len(or.Design.Sources))
+	levels := map[string][]string{}
+	for i, s := range or.Design.Sources {
+		sources[i] = s.Name
+		if s.Cat != nil {
+			levels[s.Name] = s.Cat.Levels
+		}
+	}
+	rows, err := data.LoadRowsMissing(inf.PredictPath, sources, levels, p.Data.Offset, p.Data.MissingValues, columnMissing(p), p.Data.Dialect())
+	if err != nil {
+		return nil, fmt.Errorf("%s: inference.predict: %v", p.Path, err)
+	}
+	nr.Rows = rows
+	X, i, err := or.Design.Matrix(rows.X, rows.N)
+	if err != nil {
+		return nil, fmt.Errorf("%s: inference.predict: %s:%d: %v", p.Path, rows.File, rows.Lines[i], err)
+	}
+	nr.Design = X
+	return nr, nil
 }
 
 // sourceEffects gives the marginal effects of every source variable (raw

@@ -6,7 +6,6 @@ import (
 	"encoding/hex"
 	"encoding/json"
 	"fmt"
-	"math"
 	"os"
 	"path/filepath"
 	"sort"
@@ -125,10 +124,7 @@ func imputationRecord(or *OutcomeResult) *ImputationRecord {
 		for j, n := range f.Result.ParamNames {
 			pp := PoolingParam{Name: n, Estimate: pl.Estimate[j], Within: pl.Within[j*pl.P+j], Between: pl.Between[j*pl.P+j],
 				Total: pl.Total[j*pl.P+j], RIV: pl.RIV[j], FMI: pl.FMI[j]}
-			if !math.IsInf(pl.DF[j], 0) {
-				df := pl.DF[j]
-				pp.DF = &df
-			}
+			pp.DF = finiteOrNull(pl.DF[j])
 			pf.Parameters = append(pf.Parameters, pp)
 		}
 		rec.Pooling = append(rec.Pooling, pf)

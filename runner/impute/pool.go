@@ -98,15 +98,15 @@ func Pool(sets []Set, dfComplete float64) (*Pooled, error) {
 // relative increase in variance, lambda, the Barnard-Rubin degrees of
 // freedom and the fraction of missing information (as in Pooled).
 type Scalar struct {
-	Estimate float64 `json:"estimate"`
-	Within   float64 `json:"within"`
-	Between  float64 `json:"between"`
-	Total    float64 `json:"total"`
-	SE       float64 `json:"std_error"`
-	RIV      float64 `json:"riv"`
-	Lambda   float64 `json:"lambda"`
-	DF       float64 `json:"df"`
-	FMI      float64 `json:"fmi"`
+	Estimate float64
+	Within   float64
+	Between  float64
+	Total    float64
+	SE       float64
+	RIV      float64
+	Lambda   float64
+	DF       float64
+	FMI      float64
 }
 
 // scalarRules finishes Rubin's rules for one quantity from its mean q, its
