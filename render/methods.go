@@ -155,7 +155,7 @@ func writeMethods(d *doc, r *runner.Result) {
 }
 
 func covarianceOfPlan(r *runner.Result) string {
-	switch r.Plan.Covariance {
+	switch r.Errors().Covariance {
 	case fit.Expected:
 		return "expected information"
 	case fit.Sandwich:

@@ -1,10 +1,7 @@
 package runner
 
 import (
-	"fmt"
-
 	"ordplan/plan"
-	"ordplan/runner/fit"
 )
 
 // CheckData checks a plan against its data file: the file reads, every
@@ -13,16 +10,17 @@ func CheckData(p *plan.Plan) error {
 	if err := ValidateData(p); err != nil {
 		return err
 	}
-	for _, oc := range p.Outcomes {
-		_, _, d, _, err := loadDesign(p, oc)
+	a := ResolvePlan(p)
+	for _, r := range a.Outcomes {
+		ld, err := a.Load(r)
 		if err != nil {
 			return err
 		}
-		if err := fit.CheckDesign(d); err != nil {
-			return fmt.Errorf("%s: outcome %q: %v", p.Data.File, oc.Column, err)
+		if err := a.CheckDesign(r, ld.FitData); err != nil {
+			return err
 		}
 		if p.Data.Imputed != nil {
-			if _, _, _, err := imputedSets(p, oc); err != nil {
+			if _, _, _, err := imputedSets(p, r); err != nil {
 				return err
 			}
 		}

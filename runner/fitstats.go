@@ -3,7 +3,6 @@ package runner
 import (
 	"encoding/json"
 
-	"ordplan/plan"
 	"ordplan/runner/fit"
 )
 
@@ -45,8 +44,8 @@ const likelihoodNote = "the weights are sampling weights: the log-likelihood is 
 // runFitStats fits the thresholds-only model of every approach and link
 // of the candidates, compares every usable candidate with it, and runs the
 // Lipsitz test of the chosen model with its calibration table.
-func runFitStats(p *plan.Plan, or *OutcomeResult, fopt fit.Options) {
-	prob := samplingWeights(p)
+func runFitStats(a *Analysis, or *OutcomeResult) {
+	prob, fopt := a.Errors.Sampling, a.Fit
 	nulls := map[string]*NullRecord{}
 	for _, f := range or.Fits {
 		if f.Auxiliary || !f.OK() {

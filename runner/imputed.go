@@ -36,10 +36,9 @@ type ImputedRun struct {
 // imputedSets reads the imputed sets of an outcome, checks that they are
 // complete and have the same rows and columns, and builds their designs
 // with the constants (centring, knots) frozen on the first set.
-func imputedSets(p *plan.Plan, oc plan.Outcome) (*ImputedRun, []*data.Dataset, *design.Design, error) {
+func imputedSets(p *plan.Plan, r Reading) (*ImputedRun, []*data.Dataset, *design.Design, error) {
 	im := p.Data.Imputed
-	spec := p.DesignSpec(oc)
-	dopt := dataOptions(p, oc, spec)
+	spec, dopt := r.Design, r.Options
 	dopt.Refuse = false
 	run := &ImputedRun{}
 	var sets []*data.Dataset
@@ -59,7 +58,7 @@ func imputedSets(p *plan.Plan, oc plan.Outcome) (*ImputedRun, []*data.Dataset, *
 			}
 			ds, err := data.Load(path, dopt)
 			if err != nil {
-				return nil, nil, nil, fmt.Errorf("%s (plan %s, data.imputed.files[%d], outcome %q)", err, p.Path, k, oc.Column)
+				return nil, nil, nil, fmt.Errorf("%s (plan %s, data.imputed.files[%d], outcome %q)", err, p.Path, k, r.Outcome)
 			}
 			sets = append(sets, ds)
 			names = append(names, im.Files[k])
@@ -75,7 +74,7 @@ func imputedSets(p *plan.Plan, oc plan.Outcome) (*ImputedRun, []*data.Dataset, *
 			o.Keep = append(slices.Clone(dopt.Keep), data.Condition{Column: im.Column, Op: "==", Number: float64(k), Key: "data.imputed.column"})
 			ds, err := data.Load(im.Path, o)
 			if err != nil {
-				return nil, nil, nil, fmt.Errorf("%s (plan %s, data.imputed, imputed set %d, outcome %q)", err, p.Path, k, oc.Column)
+				return nil, nil, nil, fmt.Errorf("%s (plan %s, data.imputed, imputed set %d, outcome %q)", err, p.Path, k, r.Outcome)
 			}
 			sets = append(sets, ds)
 			names = append(names, fmt.Sprintf("%s (%s = %d)", im.File, im.Column, k))
@@ -103,7 +102,7 @@ func imputedSets(p *plan.Plan, oc plan.Outcome) (*ImputedRun, []*data.Dataset, *
 	run.Data = sets
 	dz, d0, err := buildDesign(spec, sets[0])
 	if err != nil {
-		return nil, nil, nil, fmt.Errorf("%s: %v (imputed set 1, outcome %q)", p.Path, err, oc.Column)
+		return nil, nil, nil, fmt.Errorf("%s: %v (imputed set 1, outcome %q)", p.Path, err, r.Outcome)
 	}
 	run.Sets = []*fit.Data{d0}
 	for k, ds := range sets[1:] {
@@ -194,7 +193,7 @@ func imputationNumbers(p *plan.Plan, im *plan.Imputed) (int, error) {
 // poolJobs fits every job on every imputed set and replaces each job's
 // result by the pooled one (Rubin's rules; log-likelihood, AIC and BIC are
 // the means over the sets). It returns the per-set fits, by set then job.
-func poolJobs(p *plan.Plan, sets []*data.Dataset, jobs []*FitEntry, run *ImputedRun, fopt fit.Options, opt Options, outcome string) [][]*FitEntry {
+func poolJobs(a *Analysis, sets []*data.Dataset, jobs []*FitEntry, run *ImputedRun, opt Options, outcome string) [][]*FitEntry {
 	perSet := make([][]*FitEntry, run.M)
 	for k, d := range run.Sets {
 		cp := make([]*FitEntry, len(jobs))
@@ -202,7 +201,7 @@ func poolJobs(p *plan.Plan, sets []*data.Dataset, jobs []*FitEntry, run *Imputed
 			c := *e
 			cp[i] = &c
 		}
-		runJobs(cp, d, fopt, opt, fmt.Sprintf("%s, imputed set %d/%d", outcome, k+1, run.M), sandwichFor(p, sets[k], d))
+		runJobs(cp, d, a.Fit, opt, fmt.Sprintf("%s, imputed set %d/%d", outcome, k+1, run.M), a.Errors.Sandwich(sets[k], d))
 		perSet[k] = cp
 	}
 	for i, e := range jobs {
@@ -405,37 +404,34 @@ func fTest(kind fit.TestKind, t impute.FTest, llr, llf float64) fit.Test {
 // runImputedOutcome analyses one outcome on multiply imputed data: the
 // grid is fitted on every imputed set and pooled, the tests are pooled
 // (D3, D1), and the rules run on the pooled fits.
-func runImputedOutcome(p *plan.Plan, oc plan.Outcome, opt Options) (*OutcomeResult, error) {
+func runImputedOutcome(p *plan.Plan, a *Analysis, r Reading, oc plan.Outcome, opt Options) (*OutcomeResult, error) {
 	if opt.Executor != nil {
 		return nil, fmt.Errorf("%s: data.imputed: plans on imputed data run on this machine only; run without --queue", p.Path)
 	}
 	// The original file: its missing values are described in the report.
-	orig, err := data.Load(p.Data.Path, dataOptions(p, oc, p.DesignSpec(oc)))
+	orig, err := data.Load(a.DataPath, r.Options)
 	if err != nil {
 		return nil, fmt.Errorf("%s (plan %s, outcome %q)", err, p.Path, oc.Column)
 	}
-	run, sets, dz, err := imputedSets(p, oc)
+	run, sets, dz, err := imputedSets(p, r)
 	if err != nil {
 		return nil, err
 	}
 	ds := *sets[0]
 	ds.Missing = orig.Missing
-	or := &OutcomeResult{Outcome: oc, Data: &ds, FitData: run.Sets[0], Design: dz, Terms: termsOf(dz), dataOptions: dataOptions(p, oc, p.DesignSpec(oc)), Imputed: run}
+	or := &OutcomeResult{Outcome: oc, Data: &ds, FitData: run.Sets[0], Design: dz, Terms: termsOf(dz), dataOptions: r.Options, Imputed: run}
 	or.Notes = append(or.Notes, dz.Notes...)
 	for k, d := range run.Sets {
 		if err := fit.CheckDesign(d); err != nil {
 			return nil, fmt.Errorf("%s: outcome %q, imputed set %d: %v", p.Path, oc.Column, k+1, err)
 		}
 	}
-	fopt := fit.Options{Covariance: fit.Observed, Workers: 1}
-	if p.Covariance == fit.Expected {
-		fopt.Covariance = fit.Expected
-	}
+	fopt := a.Fit
 	backward := p.Models.Backward()
 	or.FreeSets, _ = freeSets(p, or.Terms, or.FitData, backward, fopt, opt.Workers)
 	jobs, notes := gridJobs(p, or.Terms, or.FreeSets, backward)
 	or.Notes = append(or.Notes, notes...)
-	perSet := poolJobs(p, sets, jobs, run, fopt, opt, oc.Column)
+	perSet := poolJobs(a, sets, jobs, run, opt, oc.Column)
 	or.Fits = jobs
 	run.Fits = perSet
 	for _, a := range p.Models.Approaches {

@@ -60,12 +60,11 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 	if p.Report.Timestamp {
 		res.Started = time.Now().UTC().Format(time.RFC3339)
 	}
-	res.Notes = append(res.Notes, fmt.Sprintf("Standard errors from the %s.", covarianceOf(p).Describe()))
-	if samplingWeights(p) {
-		res.Notes = append(res.Notes, "The weights are sampling weights: the fits maximize a pseudo-likelihood, standard errors are sandwich estimates, likelihood-ratio, score and Brant tests are not valid (the plan's test rules use Wald tests, and its choice uses TIC), and AIC/BIC are descriptive only.")
-	}
-	for _, oc := range p.Outcomes {
-		or, err := runOutcome(p, oc, opt, res.DataHash)
+	a := ResolvePlan(p)
+	res.Analysis = a
+	res.Notes = append(res.Notes, a.Errors.Notes()...)
+	for i, oc := range p.Outcomes {
+		or, err := runOutcome(p, a, a.Outcomes[i], oc, opt, res.DataHash)
 		if err != nil {
 			return nil, err
 		}
@@ -75,68 +74,55 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 	return res, nil
 }
 
-// samplingWeights reports whether the plan's weights are sampling
-// weights: the likelihood is then a pseudo-likelihood.
-func samplingWeights(p *plan.Plan) bool { return p.Data.Sampling() }
-
-// covarianceOf is the covariance a plan's fits use: sampling weights imply
-// a sandwich estimate.
-func covarianceOf(p *plan.Plan) fit.Covariance {
-	if samplingWeights(p) && !p.Covariance.IsSandwich() {
-		return fit.Sandwich
-	}
-	return p.Covariance
-}
-
-func runOutcome(p *plan.Plan, oc plan.Outcome, opt Options, dataHash string) (*OutcomeResult, error) {
+// runOutcome resolves, then does: the outcome's data and design, the
+// partial sets, the grid of fits, the tests, the rules, overall fit and
+// inference.
+func runOutcome(p *plan.Plan, a *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash string) (*OutcomeResult, error) {
 	if p.Data.Imputed != nil {
-		return runImputedOutcome(p, oc, opt)
+		return runImputedOutcome(p, a, r, oc, opt)
 	}
-	ds, dz, fd, dopt, err := loadDesign(p, oc)
+	ld, err := a.Load(r)
 	if err != nil {
 		return nil, err
 	}
-	or := &OutcomeResult{Outcome: oc, Data: ds, FitData: fd, Design: dz, Terms: termsOf(dz), dataOptions: dopt}
+	ds, dz := ld.Data, ld.Design
+	or := &OutcomeResult{Outcome: oc, Data: ds, FitData: ld.FitData, Design: dz, Terms: termsOf(dz), dataOptions: r.Options}
 	or.Notes = append(or.Notes, dz.Notes...)
-	if err := fit.CheckDesign(or.FitData); err != nil {
-		return nil, fmt.Errorf("%s: outcome %q: %v", p.Data.File, oc.Column, err)
+	if err := a.CheckDesign(r, or.FitData); err != nil {
+		return nil, err
 	}
-	fopt := fit.Options{Covariance: fit.Observed, Workers: 1}
-	if p.Covariance == fit.Expected {
-		fopt.Covariance = fit.Expected
-	}
+	fopt := a.Fit
+	sandwich := a.Errors.Sandwich(ds, or.FitData)
 	links := p.Models.Links
 	backward := p.Models.Backward()
 
 	// 1. The partial set of each approach: listed, or selected stepwise
 	// (with the plan's standard errors).
 	swopt := fopt
-	if sw := sandwichFor(p, ds, or.FitData); sw != nil {
-		swopt.Sandwich = sw
-	}
+	swopt.Sandwich = sandwich
 	or.FreeSets, or.Stepwise = freeSets(p, or.Terms, or.FitData, backward, swopt, opt.Workers)
 
 	// 2. The grid of candidate fits and the auxiliary fits the tests need.
 	jobs, notes := gridJobs(p, or.Terms, or.FreeSets, backward)
 	or.Notes = append(or.Notes, notes...)
 	if opt.Executor != nil {
-		ctx := &ruleContext{outcome: oc.Column, dataFile: p.Data.File, dataHash: dataHash, dataOptions: dopt, fitOptions: fopt, sandwich: sandwichFor(p, ds, or.FitData)}
+		ctx := &ruleContext{outcome: oc.Column, dataFile: a.DataFile, dataHash: dataHash, dataOptions: r.Options, fitOptions: fopt, sandwich: sandwich}
 		if !dz.Trivial() {
-			spec := p.DesignSpec(oc)
+			spec := r.Design
 			ctx.design = &spec
 		}
 		if err := remoteJobs(opt.Executor, jobs, ctx); err != nil {
 			return nil, err
 		}
 	} else {
-		runJobs(jobs, or.FitData, fopt, opt, oc.Column, sandwichFor(p, ds, or.FitData))
+		runJobs(jobs, or.FitData, fopt, opt, oc.Column, sandwich)
 	}
 	or.Fits = jobs
 
 	// 3. Tests of the parallel-lines assumption and nested LR tests.
-	for _, a := range p.Models.Approaches {
+	for _, ap := range p.Models.Approaches {
 		for _, l := range links {
-			or.Tests = append(or.Tests, testBlock(p, or, a, l, fopt))
+			or.Tests = append(or.Tests, testBlock(p, a, or, ap, l))
 		}
 	}
 
@@ -145,7 +131,7 @@ func runOutcome(p *plan.Plan, oc plan.Outcome, opt Options, dataHash string) (*O
 
 	// 5. Overall fit of the candidates and goodness of fit of the chosen
 	// model.
-	runFitStats(p, or, fopt)
+	runFitStats(a, or)
 
 	// 6. What the plan asks beyond the choice: hypotheses, marginal
 	// effects, predictions for new rows.
@@ -331,28 +317,6 @@ func runJobs(jobs []*FitEntry, d *fit.Data, fopt fit.Options, opt Options, outco
 		}()
 	}
 	wg.Wait()
-}
-
-// sandwichFor returns the step that replaces a fit's covariance by the
-// sandwich, or nil when the plan uses model-based errors.
-func sandwichFor(p *plan.Plan, ds *data.Dataset, d *fit.Data) func(*fit.Result) error {
-	cov := covarianceOf(p)
-	if !cov.IsSandwich() {
-		return nil
-	}
-	var clusters []string
-	if cov == fit.Clustered {
-		clusters = ds.Cluster
-	}
-	sampling := samplingWeights(p)
-	return func(r *fit.Result) error {
-		V, info, err := fit.SandwichEstimate(d, r, cov, clusters, sampling)
-		if err != nil {
-			return fmt.Errorf("%s: sandwich covariance: %w", r.Name, err)
-		}
-		r.UseCovariance(V, info.Type)
-		return nil
-	}
 }
 
 // Find returns the fit with the given id.

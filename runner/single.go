@@ -30,78 +30,51 @@ type SingleFit struct {
 	Workers     int
 }
 
-// FitOne loads the data and fits one model.
+// FitOne fits one model: it resolves the flags, reads the data, builds
+// the design, fits and applies the sandwich step of the covariance policy.
 func FitOne(s SingleFit) (*fit.Result, *data.Dataset, error) {
-	dspec := s.designSpec()
-	// Check the model's names before reading: terms stand for their
-	// columns, which are known once the design is built.
-	if _, err := (Spec{Approach: s.Approach, Backward: s.Backward, Link: s.Link, Predictors: s.Predictors,
-		Nonparallel: s.Nonparallel, Groups: s.Groups}).Model(); err != nil {
-		return nil, nil, err
-	}
-	dopt := data.Options{Outcome: s.Outcome, Categories: s.Categories,
-		Weights: s.Weights, Offset: s.Offset, Cluster: s.Cluster, Refuse: s.Refuse, Dialect: s.Dialect}
-	for _, src := range dspec.Sources {
-		dopt.Predictors = append(dopt.Predictors, src.Name)
-		if src.Cat != nil {
-			if dopt.PredictorLevels == nil {
-				dopt.PredictorLevels = map[string][]string{}
-			}
-			dopt.PredictorLevels[src.Name] = src.Cat.Levels
-		}
-	}
-	ds, err := data.Load(s.DataFile, dopt)
+	a, err := ResolveFit(s)
 	if err != nil {
 		return nil, nil, err
 	}
-	if len(ds.Unobserved) > 0 {
-		return nil, ds, fmt.Errorf("%s: outcome %q: category %q is declared but never observed in the rows used; drop it or merge it with a neighbour", s.DataFile, s.Outcome, ds.Unobserved[0])
-	}
-	dz, d, err := buildDesign(dspec, ds)
+	ld, err := a.Load(a.Outcomes[0])
 	if err != nil {
-		return nil, ds, fmt.Errorf("%s: %v", s.DataFile, err)
+		return nil, nil, err
 	}
-	ds.Notes = append(ds.Notes, dz.Notes...)
-	terms := termsOf(dz)
-	spec := Spec{Approach: s.Approach, Backward: s.Backward, Link: s.Link, Predictors: dz.Columns,
-		Nonparallel: columnsOf(terms, s.Nonparallel)}
+	ds := ld.Data
+	ds.Notes = append(ds.Notes, ld.Design.Notes...)
+	terms := termsOf(ld.Design)
+	var groups []Group
 	for _, g := range s.Groups {
-		spec.Groups = append(spec.Groups, Group{Name: g.Name, Predictors: columnsOf(terms, g.Predictors)})
+		groups = append(groups, Group{Name: g.Name, Predictors: columnsOf(terms, g.Predictors)})
 	}
-	model, err := spec.Model()
+	model, err := s.spec(ld.Design.Columns, columnsOf(terms, s.Nonparallel), groups).Model()
 	if err != nil {
 		return nil, ds, err
 	}
-	cov := s.Covariance
-	if cov == fit.Clustered && s.Cluster == "" {
-		return nil, ds, fmt.Errorf("clustered covariance needs a cluster column (--cluster COL)")
-	}
-	if s.Sampling && s.Weights == "" {
-		return nil, ds, fmt.Errorf("sampling weights need a weights column (--weights COL)")
-	}
-	if s.Sampling && !cov.IsSandwich() {
-		cov = fit.Sandwich // pseudo-likelihood: sandwich errors
-	}
-	fopt := fit.Options{Covariance: fit.Observed, Workers: s.Workers}
-	if cov == fit.Expected {
-		fopt.Covariance = fit.Expected
-	}
-	res, err := fit.Fit(d, model, fopt)
+	res, err := fit.Fit(ld.FitData, model, a.Fit)
 	if err != nil {
 		return nil, ds, fmt.Errorf("%s: %w", s.DataFile, err)
 	}
-	if cov.IsSandwich() && res.OK() {
-		var clusters []string
-		if cov == fit.Clustered {
-			clusters = ds.Cluster
-		}
-		V, info, err := fit.SandwichEstimate(d, res, cov, clusters, s.Sampling)
-		if err != nil {
+	if sw := a.Errors.Sandwich(ds, ld.FitData); sw != nil && res.OK() {
+		if err := sw(res); err != nil {
 			return nil, ds, err
 		}
-		res.UseCovariance(V, info.Type)
 	}
 	return res, ds, nil
+}
+
+// Model is the model the flags describe, on the term names (which are the
+// columns when every term is a plain numeric column).
+func (s SingleFit) Model() (fit.Model, error) {
+	return s.spec(s.Predictors, s.Nonparallel, s.Groups).Model()
+}
+
+// spec is the model the flags describe on the given predictor columns
+// (the term names before the design is built).
+func (s SingleFit) spec(predictors, nonparallel []string, groups []Group) Spec {
+	return Spec{Approach: s.Approach, Backward: s.Backward, Link: s.Link, Predictors: predictors,
+		Nonparallel: nonparallel, Groups: groups}
 }
 
 // FitData turns a loaded data set into fit input.
@@ -125,8 +98,9 @@ func (s SingleFit) designSpec() design.Spec {
 }
 
 // PlainColumns reports whether every term is a numeric column as it is.
-func (s SingleFit) PlainColumns() bool {
-	spec := s.designSpec()
+func (s SingleFit) PlainColumns() bool { return plainColumns(s.designSpec()) }
+
+func plainColumns(spec design.Spec) bool {
 	for _, src := range spec.Sources {
 		if src.Cat != nil {
 			return false

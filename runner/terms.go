@@ -1,57 +1,14 @@
 package runner
 
 import (
-	"errors"
 	"fmt"
 	"slices"
 	"strings"
 
-	"ordplan/plan"
 	"ordplan/runner/data"
 	"ordplan/runner/design"
 	"ordplan/runner/fit"
 )
-
-// dataOptions says how to read the data of one outcome: its outcome
-// column, the raw columns its terms read (categorical ones as levels), the
-// subset, weights, offset and cluster.
-func dataOptions(p *plan.Plan, oc plan.Outcome, spec design.Spec) data.Options {
-	dopt := data.Options{
-		Outcome: oc.Column, Categories: oc.Categories,
-		Weights: p.Data.Weights, Offset: p.Data.Offset, Cluster: p.Data.Cluster,
-		Refuse: p.Data.Missing == "refuse", MissingTokens: p.Data.MissingValues,
-		Keep: p.Subset, ColumnMissing: columnMissing(p), Dialect: p.Data.Dialect(),
-	}
-	for _, s := range spec.Sources {
-		dopt.Predictors = append(dopt.Predictors, s.Name)
-		if s.Cat != nil {
-			if dopt.PredictorLevels == nil {
-				dopt.PredictorLevels = map[string][]string{}
-			}
-			dopt.PredictorLevels[s.Name] = s.Cat.Levels
-		}
-	}
-	return dopt
-}
-
-// loadDesign reads an outcome's data and builds its design: the raw
-// columns become design columns, every data-determined constant frozen.
-func loadDesign(p *plan.Plan, oc plan.Outcome) (*data.Dataset, *design.Design, *fit.Data, data.Options, error) {
-	spec := p.DesignSpec(oc)
-	dopt := dataOptions(p, oc, spec)
-	ds, err := data.Load(p.Data.Path, dopt)
-	if err != nil {
-		return nil, nil, nil, dopt, fmt.Errorf("%s (plan %s, outcome %q%s)", err, p.Path, oc.Column, planKeyOf(p, err))
-	}
-	if len(ds.Unobserved) > 0 {
-		return nil, nil, nil, dopt, fmt.Errorf("%s: outcomes: %s: category %q is declared but never observed in the %d rows used; remove it from categories or merge it with a neighbour", p.Path, oc.Column, ds.Unobserved[0], ds.N)
-	}
-	dz, d, err := buildDesign(spec, ds)
-	if err != nil {
-		return nil, nil, nil, dopt, fmt.Errorf("%s: %v (data %s, outcome %q)", p.Path, err, p.Data.File, oc.Column)
-	}
-	return ds, dz, d, dopt, nil
-}
 
 // buildDesign builds the design of spec on a data set read with its
 // sources as predictors, and the fit input.
@@ -67,24 +24,6 @@ func buildDesign(spec design.Spec, ds *data.Dataset) (*design.Design, *fit.Data,
 	d := &fit.Data{Y: ds.Y, J: len(ds.Categories), X: X, Predictors: dz.Columns, Categories: ds.Categories,
 		Weights: ds.Weights, Offset: ds.Offset}
 	return dz, d, nil
-}
-
-// planKeyOf names the plan key behind a data error on a categorical
-// column or a subset column.
-func planKeyOf(p *plan.Plan, err error) string {
-	var de *data.Error
-	if !errors.As(err, &de) || de.Column == "" {
-		return ""
-	}
-	if c := p.CategoricalOf(de.Column); c != nil {
-		return ", plan key " + c.Key
-	}
-	for _, k := range p.Subset {
-		if k.Column == de.Column {
-			return ", plan key " + k.Key
-		}
-	}
-	return ""
 }
 
 // termsOf lists the outcome's terms with their design columns.

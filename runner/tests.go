@@ -20,13 +20,13 @@ func missingTest(kind fit.TestKind, reason string) fit.Test {
 
 // testBlock runs the parallel-lines tests the plan asks for and the nested
 // likelihood-ratio tests of one approach and link.
-func testBlock(p *plan.Plan, or *OutcomeResult, approach fit.Comparison, link fit.Link, fopt fit.Options) *TestBlock {
+func testBlock(p *plan.Plan, a *Analysis, or *OutcomeResult, approach fit.Comparison, link fit.Link) *TestBlock {
 	tb := &TestBlock{Approach: approach, Link: link}
 	d := or.FitData
 	cell := func(s fit.Structure) *FitEntry { return or.Cell(approach, s, link) }
 	par, np := cell(fit.ParallelEffects), cell(fit.NonparallelEffects)
 	cumLogit := approach == fit.Cumulative && link == fit.Logit
-	sw := samplingWeights(p)
+	sw, fopt := a.Errors.Sampling, a.Fit
 	var brant *fit.BrantResult
 	for _, kind := range p.Tests.ParallelLines {
 		if sw && kind != fit.TestWald {

@@ -31,6 +31,9 @@ type Result struct {
 	Registration *lock.Status
 	// Simulated is set when the data were simulated (ordplan rehearse).
 	Simulated *Simulation
+	// Analysis is the plan resolved: how the data were read, the fit
+	// options and the covariance policy.
+	Analysis *Analysis `json:"-"`
 }
 
 // OutcomeResult holds the fits, tests and decisions of one outcome.

@@ -11,8 +11,6 @@ import (
 
 	"ordplan/render"
 	"ordplan/runner"
-	"ordplan/runner/data"
-	"ordplan/runner/fit"
 	"ordplan/runner/queue"
 )
 
@@ -25,15 +23,15 @@ func fitPartitioned(s runner.SingleFit, qf *queueFlags, parts []string, asJSON b
 		return fail(stderr, errors.New("--partitions needs --queue nats://HOST:PORT"))
 	case len(parts) == 0:
 		return fail(stderr, errors.New("--queue with ordplan fit needs --partitions a.csv,b.csv,..."))
-	case s.Covariance != fit.Observed:
-		return fail(stderr, errors.New("partitioned fits give observed-information standard errors only"))
-	case s.Sampling || s.Cluster != "":
-		return fail(stderr, errors.New("partitioned fits take frequency weights only, without clusters"))
-	case !s.PlainColumns():
-		return fail(stderr, errors.New("partitioned fits read numeric columns as they are: categorical columns, transformations and interactions need the whole data in one place (their constants come from all rows)"))
 	}
-	spec := runner.Spec{Approach: s.Approach, Backward: s.Backward, Link: s.Link, Predictors: s.Predictors, Nonparallel: s.Nonparallel, Groups: s.Groups}
-	m, err := spec.Model()
+	a, err := runner.ResolveFit(s)
+	if err != nil {
+		return fail(stderr, err)
+	}
+	if err := a.Partitioned(); err != nil {
+		return fail(stderr, err)
+	}
+	m, err := s.Model()
 	if err != nil {
 		return fail(stderr, err)
 	}
@@ -41,7 +39,7 @@ func fitPartitioned(s runner.SingleFit, qf *queueFlags, parts []string, asJSON b
 	if err != nil {
 		return usageOrFail("fit", err, stderr)
 	}
-	dopt := data.Options{Outcome: s.Outcome, Categories: s.Categories, Predictors: s.Predictors, Weights: s.Weights, Offset: s.Offset, Refuse: s.Refuse, Dialect: s.Dialect}
+	dopt := a.Outcomes[0].Options
 	whole, refs, read, err := queue.PartitionFiles(parts, dopt)
 	if err != nil {
 		return fail(stderr, err)

@@ -1,0 +1,281 @@
+package runner
+
+import (
+	"errors"
+	"fmt"
+
+	"ordplan/plan"
+	"ordplan/runner/data"
+	"ordplan/runner/design"
+	"ordplan/runner/fit"
+)
+
+// Analysis is what running a plan, or `ordplan fit`, needs, resolved once
+// from the plan (ResolvePlan) or from the flags (ResolveFit): how to read
+// each outcome's data and build its design, the fit options, and the
+// covariance policy with its sandwich step. Run, FitOne, CheckData and the
+// partitioned fit resolve, then do: they read this value, not the plan.
+type Analysis struct {
+	// Source names the analysis in messages: the plan file, or for the
+	// flags of `ordplan fit` the data file.
+	Source   string
+	Plan     bool   // resolved from a plan (messages then name plan keys)
+	DataFile string // the data file as the plan or the flag names it
+	DataPath string // where the data file is read
+	Outcomes []Reading
+	// Fit are the options of every fit: model-based errors (observed or
+	// expected information) and the workers of one fit.
+	Fit    fit.Options
+	Errors CovariancePolicy
+}
+
+// Reading says how to read the data of one outcome and build its design.
+type Reading struct {
+	Outcome string
+	// Key names the outcome in messages ("outcomes: y" in a plan,
+	// `outcome "y"` for flags); CategoriesKey is where its categories are
+	// declared ("categories", "--categories").
+	Key, CategoriesKey string
+	Options            data.Options
+	Design             design.Spec
+	// ColumnKeys names the plan key behind a column the reader may refuse
+	// (categorical predictors, subset conditions); nil for flags.
+	ColumnKeys map[string]string
+}
+
+// CovariancePolicy says which standard errors the fits report. Sampling
+// weights make the likelihood a pseudo-likelihood and imply a sandwich
+// estimate (HC1) unless another sandwich is asked for.
+type CovariancePolicy struct {
+	Covariance fit.Covariance // what the fits report
+	Sampling   bool           // the weights are sampling weights
+}
+
+// covariancePolicy resolves the covariance asked for under the weights.
+func covariancePolicy(asked fit.Covariance, sampling bool) CovariancePolicy {
+	if sampling && !asked.IsSandwich() {
+		asked = fit.Sandwich
+	}
+	return CovariancePolicy{Covariance: asked, Sampling: sampling}
+}
+
+// fitOptions are the options of the fits under the policy: a sandwich is
+// computed after the fit (Sandwich), from observed-information fits.
+func (c CovariancePolicy) fitOptions(workers int) fit.Options {
+	o := fit.Options{Covariance: fit.Observed, Workers: workers}
+	if c.Covariance == fit.Expected {
+		o.Covariance = fit.Expected
+	}
+	return o
+}
+
+// Notes are the run-level remarks the policy brings to the report.
+func (c CovariancePolicy) Notes() []string {
+	out := []string{fmt.Sprintf("Standard errors from the %s.", c.Covariance.Describe())}
+	if c.Sampling {
+		out = append(out, "The weights are sampling weights: the fits maximize a pseudo-likelihood, standard errors are sandwich estimates, likelihood-ratio, score and Brant tests are not valid (the plan's test rules use Wald tests, and its choice uses TIC), and AIC/BIC are descriptive only.")
+	}
+	return out
+}
+
+// Sandwich returns the step that replaces a usable fit's covariance by the
+// sandwich estimate on the data it was fitted to, or nil when the policy
+// uses model-based errors.
+func (c CovariancePolicy) Sandwich(ds *data.Dataset, d *fit.Data) func(*fit.Result) error {
+	if !c.Covariance.IsSandwich() {
+		return nil
+	}
+	var clusters []string
+	if c.Covariance == fit.Clustered {
+		clusters = ds.Cluster
+	}
+	cov, sampling := c.Covariance, c.Sampling
+	return func(r *fit.Result) error {
+		V, info, err := fit.SandwichEstimate(d, r, cov, clusters, sampling)
+		if err != nil {
+			return fmt.Errorf("%s: sandwich covariance: %w", r.Name, err)
+		}
+		r.UseCovariance(V, info.Type)
+		return nil
+	}
+}
+
+// Errors is the covariance policy the run's fits followed.
+func (r *Result) Errors() CovariancePolicy {
+	if r.Analysis == nil {
+		return ResolvePlan(r.Plan).Errors
+	}
+	return r.Analysis.Errors
+}
+
+// ResolvePlan resolves a validated plan.
+func ResolvePlan(p *plan.Plan) *Analysis {
+	a := &Analysis{Source: p.Path, Plan: true, DataFile: p.Data.File, DataPath: p.Data.Path,
+		Errors: covariancePolicy(p.Covariance, p.Data.Sampling())}
+	a.Fit = a.Errors.fitOptions(1) // the grid runs its fits in parallel
+	for _, oc := range p.Outcomes {
+		spec := p.DesignSpec(oc)
+		dopt := data.Options{
+			Outcome: oc.Column, Categories: oc.Categories,
+			Weights: p.Data.Weights, Offset: p.Data.Offset, Cluster: p.Data.Cluster,
+			Refuse: p.Data.Missing == "refuse", MissingTokens: p.Data.MissingValues,
+			Keep: p.Subset, ColumnMissing: columnMissing(p), Dialect: p.Data.Dialect(),
+		}
+		r := Reading{Outcome: oc.Column, Key: "outcomes: " + oc.Column, CategoriesKey: "categories",
+			Options: readSources(dopt, spec), Design: spec}
+		for _, col := range readColumns(r.Options) {
+			if c := p.CategoricalOf(col); c != nil {
+				r.setKey(col, c.Key)
+			}
+		}
+		for _, k := range p.Subset {
+			if _, ok := r.ColumnKeys[k.Column]; !ok {
+				r.setKey(k.Column, k.Key)
+			}
+		}
+		a.Outcomes = append(a.Outcomes, r)
+	}
+	return a
+}
+
+// readColumns lists the columns data options read, subset columns
+// included.
+func readColumns(o data.Options) []string {
+	out := append([]string{o.Outcome}, o.Predictors...)
+	for _, c := range []string{o.Weights, o.Offset, o.Cluster} {
+		if c != "" {
+			out = append(out, c)
+		}
+	}
+	for _, k := range o.Keep {
+		out = append(out, k.Column)
+	}
+	return out
+}
+
+func (r *Reading) setKey(column, key string) {
+	if r.ColumnKeys == nil {
+		r.ColumnKeys = map[string]string{}
+	}
+	r.ColumnKeys[column] = key
+}
+
+// ResolveFit resolves the flags of `ordplan fit`: one outcome, the model's
+// names checked before any reading.
+func ResolveFit(s SingleFit) (*Analysis, error) {
+	// Terms stand for their columns, which are known once the design is
+	// built; the names are checked now.
+	if _, err := s.Model(); err != nil {
+		return nil, err
+	}
+	if s.Covariance == fit.Clustered && s.Cluster == "" {
+		return nil, errors.New("clustered covariance needs a cluster column (--cluster COL)")
+	}
+	if s.Sampling && s.Weights == "" {
+		return nil, errors.New("sampling weights need a weights column (--weights COL)")
+	}
+	spec := s.designSpec()
+	dopt := data.Options{Outcome: s.Outcome, Categories: s.Categories,
+		Weights: s.Weights, Offset: s.Offset, Cluster: s.Cluster, Refuse: s.Refuse, Dialect: s.Dialect}
+	a := &Analysis{Source: s.DataFile, DataFile: s.DataFile, DataPath: s.DataFile,
+		Errors: covariancePolicy(s.Covariance, s.Sampling)}
+	a.Fit = a.Errors.fitOptions(s.Workers)
+	a.Outcomes = []Reading{{Outcome: s.Outcome, Key: fmt.Sprintf("outcome %q", s.Outcome), CategoriesKey: "--categories",
+		Options: readSources(dopt, spec), Design: spec}}
+	return a, nil
+}
+
+// readSources adds the raw columns a design reads to the data options,
+// categorical ones with their levels.
+func readSources(dopt data.Options, spec design.Spec) data.Options {
+	for _, s := range spec.Sources {
+		dopt.Predictors = append(dopt.Predictors, s.Name)
+		if s.Cat != nil {
+			if dopt.PredictorLevels == nil {
+				dopt.PredictorLevels = map[string][]string{}
+			}
+			dopt.PredictorLevels[s.Name] = s.Cat.Levels
+		}
+	}
+	return dopt
+}
+
+// Loaded is one outcome's data as read, its design and the fit input.
+type Loaded struct {
+	Data    *data.Dataset
+	Design  *design.Design
+	FitData *fit.Data
+}
+
+// Load reads an outcome's data (from the analysis's data file) and builds
+// its design, every data-determined constant frozen. A declared category
+// that no row used has is refused here, for every command alike.
+func (a *Analysis) Load(r Reading) (*Loaded, error) {
+	ds, err := data.Load(a.DataPath, r.Options)
+	if err != nil {
+		if !a.Plan {
+			return nil, err
+		}
+		return nil, fmt.Errorf("%s (plan %s, outcome %q%s)", err, a.Source, r.Outcome, r.keyOf(err))
+	}
+	if err := a.Observed(r, ds); err != nil {
+		return nil, err
+	}
+	dz, d, err := buildDesign(r.Design, ds)
+	if err != nil {
+		if !a.Plan {
+			return nil, fmt.Errorf("%s: %v", a.DataFile, err)
+		}
+		return nil, fmt.Errorf("%s: %v (data %s, outcome %q)", a.Source, err, a.DataFile, r.Outcome)
+	}
+	return &Loaded{Data: ds, Design: dz, FitData: d}, nil
+}
+
+// Observed refuses data in which a declared category of the outcome has no
+// row: the one check and wording of an unobserved category.
+func (a *Analysis) Observed(r Reading, ds *data.Dataset) error {
+	if len(ds.Unobserved) == 0 {
+		return nil
+	}
+	return fmt.Errorf("%s: %s: category %q is declared but never observed in the %d rows used; remove it from %s or merge it with a neighbour",
+		a.Source, r.Key, ds.Unobserved[0], ds.N, r.CategoriesKey)
+}
+
+// CheckDesign checks an outcome's fit input before any model is fitted
+// (categories, weights, constant or collinear predictors).
+func (a *Analysis) CheckDesign(r Reading, d *fit.Data) error {
+	if err := fit.CheckDesign(d); err != nil {
+		return fmt.Errorf("%s: outcome %q: %v", a.DataFile, r.Outcome, err)
+	}
+	return nil
+}
+
+// keyOf names the plan key behind a data error on a categorical column or
+// a subset column.
+func (r Reading) keyOf(err error) string {
+	var de *data.Error
+	if !errors.As(err, &de) || de.Column == "" {
+		return ""
+	}
+	if k, ok := r.ColumnKeys[de.Column]; ok {
+		return ", plan key " + k
+	}
+	return ""
+}
+
+// Partitioned checks that the analysis can be fitted over partitions held
+// by workers: sums over partitions give the observed information of
+// frequency-weighted rows, and the design must need no constant of the
+// whole data.
+func (a *Analysis) Partitioned() error {
+	r := a.Outcomes[0]
+	switch {
+	case a.Errors.Sampling || r.Options.Cluster != "":
+		return errors.New("partitioned fits take frequency weights only, without clusters")
+	case a.Errors.Covariance != fit.Observed:
+		return errors.New("partitioned fits give observed-information standard errors only")
+	case !plainColumns(r.Design):
+		return errors.New("partitioned fits read numeric columns as they are: categorical columns, transformations and interactions need the whole data in one place (their constants come from all rows)")
+	}
+	return nil
+}
