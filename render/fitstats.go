@@ -3,6 +3,7 @@ package render
 import (
 	"fmt"
 	"math"
+	"strings"
 
 	"github.com/go-echarts/go-echarts/v2/charts"
 	"github.com/go-echarts/go-echarts/v2/opts"
@@ -101,9 +102,6 @@ func writeGoodnessOfFit(d *doc, or *runner.OutcomeResult) {
 	} else {
 		d.p("Lipsitz test not computed: %s.", lz.Test.Reason)
 	}
-	if hasCategorical(or) {
-		d.p("The Pulkstenis-Robinson tests, which would also group the rows by the levels of the categorical predictors, are not computed by this version of the program.")
-	}
 	d.p("Observed and expected counts (the sum of the predicted probabilities) of each category in each group:")
 	head := []string{"Group", "Score range", "N"}
 	for _, l := range t.Categories {
@@ -119,6 +117,58 @@ func writeGoodnessOfFit(d *doc, or *runner.OutcomeResult) {
 	}
 	d.captioned("Observed and expected counts by group of predicted score").table(head, rows)
 	d.charts("Chart in report.html: observed against expected share of each category by group of predicted score.", calibrationChart(d, or))
+	writePatternSplit(d, or)
+}
+
+// writePatternSplit writes the Pulkstenis-Robinson tests of the chosen
+// model and their table, or why they were not computed.
+func writePatternSplit(d *doc, or *runner.OutcomeResult) {
+	rec := or.PatternSplit
+	if rec == nil {
+		return
+	}
+	d.h(4, "Tests by covariate pattern (Pulkstenis-Robinson)")
+	if rec.PatternSplit == nil {
+		d.p("Not applicable: %s.", rec.NotComputed)
+		return
+	}
+	t := rec.PatternSplit
+	split := fmt.Sprintf("the rows of each pattern are cut in two at the pattern's median predicted score (rows with the same score stay together; %d of %d patterns could be cut)", t.Split, t.Patterns)
+	df := "(G − 1)(J − 1) − k − 1 degrees of freedom, with G the groups, J the categories and k the model's parameters on the categorical predictors' columns (here k = " + fmt.Sprint(t.CategoricalParams) + ")"
+	if t.Split == 0 {
+		split = "no pattern could be cut in two, because every row of a pattern has the same predicted score (the model's predictors are all categorical), so each pattern is one group"
+		df = "G(J − 1) − P degrees of freedom, the usual count for grouped data (G groups, J categories, P parameters of the model)"
+	}
+	d.p("The rows are grouped by the combination of the levels of the categorical predictors (%s: %d patterns); %s. The Pearson statistic Σ(O − E)²/E and the deviance 2 Σ O log(O/E) over groups and categories compare the observed counts O with the expected counts E, and are referred to chi-square on %s. The reference distribution is approximate: see the documentation of the models for how it was checked by simulation.",
+		strings.Join(rec.Predictors, ", "), t.Patterns, split, df)
+	for _, ts := range []struct {
+		name string
+		test fit.Test
+	}{{"Pearson", t.Pearson}, {"Deviance", t.Deviance}} {
+		if ts.test.OK {
+			d.p("%s: chi-square(%d) = %s, %s.", ts.name, ts.test.DF, numfmt.Stat(ts.test.Chi2), numfmt.PText(ts.test.P))
+		} else {
+			d.p("%s statistic %s: not a test, %s.", ts.name, numfmt.Stat(ts.test.Chi2), ts.test.Reason)
+		}
+	}
+	if t.Caution != "" {
+		d.p("Caution: %s.", t.Caution)
+	} else {
+		d.p("Expected counts: %d of %d cells below 5, the smallest %s.", t.CellsBelow5, t.Cells, numfmt.Fixed(t.MinExpected, 2))
+	}
+	head := []string{"Pattern", "Half", "N"}
+	for _, l := range t.Categories {
+		head = append(head, l+" obs", l+" exp")
+	}
+	var rows [][]string
+	for g := 0; g < t.Groups; g++ {
+		row := []string{t.Pattern[g], t.Half[g], numfmt.Num(t.Weight[g])}
+		for j := range t.Categories {
+			row = append(row, numfmt.Num(t.Observed[g][j]), numfmt.Fixed(t.Expected[g][j], 1))
+		}
+		rows = append(rows, row)
+	}
+	d.captioned("Observed and expected counts by covariate pattern and half of predicted score").table(head, rows)
 }
 
 // calibrationChart draws, per category, the observed share in each group
@@ -154,18 +204,4 @@ func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 	}
 	caption := "For each category, the expected share of each group (line) and the observed share (points). Points far from their line, in a pattern, show where the model misfits; groups are ordered by predicted score."
 	return newChart(id, 420, caption, l).with(fig)
-}
-
-// hasCategorical reports whether a predictor of the outcome is
-// categorical.
-func hasCategorical(or *runner.OutcomeResult) bool {
-	if or.Design == nil {
-		return false
-	}
-	for _, s := range or.Design.Sources {
-		if s.Cat != nil {
-			return true
-		}
-	}
-	return false
 }

@@ -32,6 +32,7 @@ var references = []reference{
 	{"nagelkerke", "Nagelkerke, N.J.D. (1991). A note on a general definition of the coefficient of determination. Biometrika 78:691-692."},
 	{"mckelvey", "McKelvey, R.D. & Zavoina, W. (1975). A statistical model for the analysis of ordinal level dependent variables. Journal of Mathematical Sociology 4:103-120."},
 	{"lipsitz", "Lipsitz, S.R., Fitzmaurice, G.M. & Molenberghs, G. (1996). Goodness-of-fit tests for ordinal response regression models. Applied Statistics 45:175-190."},
+	{"pulkstenis", "Pulkstenis, E. & Robinson, T.J. (2004). Goodness-of-fit tests for ordinal response regression models. Statistics in Medicine 23:999-1014."},
 }
 
 // citer numbers references in the order the text first cites them.
@@ -146,6 +147,9 @@ func writeMethods(d *doc, r *runner.Result) {
 		s = append(s, fmt.Sprintf("Each model was compared with the model with thresholds only by a likelihood-ratio test and pseudo-R² measures (McFadden %s, Cox-Snell and Nagelkerke %s, McKelvey-Zavoina for cumulative models with parallel effects %s).", c.cite("mcfadden"), c.cite("nagelkerke"), c.cite("mckelvey")))
 		if or.Lipsitz != nil {
 			s = append(s, fmt.Sprintf("The fit of the chosen model was checked with the Lipsitz test %s and by comparing observed and expected counts in groups of predicted score.", c.cite("lipsitz")))
+		}
+		if ps := or.PatternSplit; ps != nil && ps.PatternSplit != nil {
+			s = append(s, fmt.Sprintf("Its fit by covariate pattern of the categorical predictors (%s) was checked with the Pulkstenis-Robinson Pearson and deviance tests %s.", strings.Join(ps.Predictors, ", "), c.cite("pulkstenis")))
 		}
 		s = append(s, fmt.Sprintf("Predicted probabilities and marginal effects have delta-method standard errors; the random starts of constrained fits used the seed %d.", p.Seed))
 		d.p("%s", strings.Join(s, " "))

@@ -225,10 +225,14 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	if or.Lipsitz != nil && or.Chosen != nil {
 		testRow("goodness_of_fit", "", "", or.Chosen.ID, or.Lipsitz.Test)
 	}
+	if ps := or.PatternSplit; ps != nil && ps.PatternSplit != nil && or.Chosen != nil {
+		testRow("goodness_of_fit", "", "", or.Chosen.ID, ps.Pearson)
+		testRow("goodness_of_fit", "", "", or.Chosen.ID, ps.Deviance)
+	}
 	for _, h := range or.Hypotheses {
 		testRow("hypothesis", "", "", h.Model+": "+h.Text, h.Test)
 	}
-	add("tests", "every test of the report: parallel lines, nested likelihood ratios, each model against its thresholds-only model, the Lipsitz test, the plan's hypotheses",
+	add("tests", "every test of the report: parallel lines, nested likelihood ratios, each model against its thresholds-only model, the Lipsitz and Pulkstenis-Robinson tests, the plan's hypotheses",
 		[]string{"family", "approach", "link", "scope", "test", "chi2", "df", "p", "note"}, rows)
 
 	// The decision log.
@@ -295,6 +299,17 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 			}
 		}
 		add("calibration", "observed and expected counts of each category by group of predicted score", []string{"group", "score_low", "score_high", "n", "category", "observed", "expected"}, rows)
+	}
+	// The table of the Pulkstenis-Robinson tests.
+	if ps := or.PatternSplit; ps != nil && ps.PatternSplit != nil {
+		t := ps.PatternSplit
+		rows = nil
+		for g := 0; g < t.Groups; g++ {
+			for j, l := range t.Categories {
+				rows = append(rows, []string{t.Pattern[g], t.Half[g], csvNum(t.Weight[g]), l, csvNum(t.Observed[g][j]), csvNum(t.Expected[g][j])})
+			}
+		}
+		add("patterns", "observed and expected counts of each category by covariate pattern of the categorical predictors and half of predicted score (Pulkstenis-Robinson tests)", []string{"pattern", "half", "n", "category", "observed", "expected"}, rows)
 	}
 	return out
 }

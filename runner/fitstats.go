@@ -2,6 +2,9 @@ package runner
 
 import (
 	"encoding/json"
+	"fmt"
+	"sort"
+	"strings"
 
 	"ordplan/runner/fit"
 )
@@ -80,6 +83,112 @@ func runFitStats(a *Analysis, or *OutcomeResult) {
 		lz.Test = fit.Test{Name: "lipsitz", Reason: likelihoodNote}
 	}
 	or.Lipsitz = lz
+	or.PatternSplit = patternSplit(or, prob)
+}
+
+// PatternSplitRecord is the Pulkstenis-Robinson tests of the chosen
+// model, or why they were not computed.
+type PatternSplitRecord struct {
+	Predictors  []string `json:"categorical_predictors"`
+	NotComputed string   `json:"not_computed,omitempty"`
+	*fit.PatternSplit
+}
+
+// pearsonNote is why Pearson-type statistics are not tests under sampling
+// weights.
+const pearsonNote = "the weights are sampling weights: weighted counts do not follow the multinomial model the chi-square reference assumes"
+
+// patternSplit runs the Pulkstenis-Robinson tests of the chosen model
+// when the outcome has categorical predictors: the rows grouped by the
+// combination of their levels.
+func patternSplit(or *OutcomeResult, sampling bool) *PatternSplitRecord {
+	rec := &PatternSplitRecord{Predictors: []string{}}
+	if or.Design == nil || or.Data == nil {
+		return nil
+	}
+	var cats []int
+	for s, src := range or.Design.Sources {
+		if src.Cat != nil {
+			cats = append(cats, s)
+			rec.Predictors = append(rec.Predictors, src.Name)
+		}
+	}
+	if len(cats) == 0 {
+		rec.NotComputed = "no categorical predictors: the tests group the rows by the levels of the categorical predictors"
+		return rec
+	}
+	pattern, labels := covariatePatterns(or, cats)
+	ps, err := fit.PulkstenisRobinsonTest(or.FitData, or.Chosen.Result, pattern, labels, categoricalColumns(or))
+	if err != nil {
+		rec.NotComputed = err.Error()
+		return rec
+	}
+	if sampling {
+		ps.Pearson = fit.Test{Name: ps.Pearson.Name, Reason: pearsonNote}
+		ps.Deviance = fit.Test{Name: ps.Deviance.Name, Reason: pearsonNote}
+	}
+	rec.PatternSplit = ps
+	return rec
+}
+
+// covariatePatterns gives each row's combination of the levels of the
+// categorical sources cats (numbered in the order of the levels as
+// declared, first source slowest) and the label of each combination.
+func covariatePatterns(or *OutcomeResult, cats []int) ([]int, []string) {
+	ds := or.Data
+	keys := map[string][]int{}
+	rowKey := make([]string, ds.N)
+	for i := 0; i < ds.N; i++ {
+		lv := make([]int, len(cats))
+		parts := make([]string, len(cats))
+		for c, s := range cats {
+			lv[c] = int(ds.X[i*ds.K+s])
+			parts[c] = fmt.Sprintf("%06d", lv[c])
+		}
+		rowKey[i] = strings.Join(parts, ",")
+		keys[rowKey[i]] = lv
+	}
+	sorted := make([]string, 0, len(keys))
+	for k := range keys {
+		sorted = append(sorted, k)
+	}
+	sort.Strings(sorted)
+	index := map[string]int{}
+	labels := make([]string, len(sorted))
+	for p, k := range sorted {
+		index[k] = p
+		var parts []string
+		for c, s := range cats {
+			src := or.Design.Sources[s]
+			parts = append(parts, src.Name+"="+src.Cat.Levels[keys[k][c]])
+		}
+		labels[p] = strings.Join(parts, ", ")
+	}
+	pattern := make([]int, ds.N)
+	for i, k := range rowKey {
+		pattern[i] = index[k]
+	}
+	return pattern, labels
+}
+
+// categoricalColumns lists the design columns made only of categorical
+// sources (their main effects and their products with each other).
+func categoricalColumns(or *OutcomeResult) []string {
+	var out []string
+	for k, t := range or.Design.Terms {
+		all := true
+		for _, name := range or.Design.TermSources(k) {
+			for _, src := range or.Design.Sources {
+				if src.Name == name && src.Cat == nil {
+					all = false
+				}
+			}
+		}
+		if all {
+			out = append(out, t.Columns...)
+		}
+	}
+	return out
 }
 
 // OverallOf returns the overall fit of model id, or nil.

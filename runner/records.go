@@ -66,8 +66,10 @@ type OutcomeDecisions struct {
 	Final      map[string]Verdict `json:"final_verdicts"`
 	Overall    []OverallRecord    `json:"overall_fit"`
 	Lipsitz    *fit.Lipsitz       `json:"lipsitz,omitempty"`
-	Hypotheses []HypothesisResult `json:"hypotheses,omitempty"`
-	Marginal   []MarginalSet      `json:"marginal_effects,omitempty"`
+	// PatternSplit: the Pulkstenis-Robinson tests of the chosen model.
+	PatternSplit *PatternSplitRecord `json:"pulkstenis_robinson,omitempty"`
+	Hypotheses   []HypothesisResult  `json:"hypotheses,omitempty"`
+	Marginal     []MarginalSet       `json:"marginal_effects,omitempty"`
 	// Terms: how each predictor term became design columns, with every
 	// constant frozen from the data (omitted when every term is a numeric
 	// column as it is).
@@ -220,6 +222,7 @@ func BuildDecisions(r *Result) *Decisions {
 			od.Overall = []OverallRecord{}
 		}
 		od.Lipsitz = or.Lipsitz
+		od.PatternSplit = or.PatternSplit
 		od.Hypotheses = or.Hypotheses
 		od.Marginal = or.Marginal
 		d.Outcomes = append(d.Outcomes, od)

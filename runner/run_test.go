@@ -158,6 +158,11 @@ func TestRunReproducesReferenceTests(t *testing.T) {
 	if len(or.Rules) != len(p.Rules) {
 		t.Errorf("%d rule outcomes for %d rules", len(or.Rules), len(p.Rules))
 	}
+	// No categorical predictor: the Pulkstenis-Robinson tests say why they
+	// are not computed.
+	if ps := or.PatternSplit; ps == nil || ps.PatternSplit != nil || !strings.Contains(ps.NotComputed, "no categorical predictors") {
+		t.Errorf("Pulkstenis-Robinson without categorical predictors: %+v", ps)
+	}
 }
 
 // TestRunStepwise reproduces Williams (2006) on the General Social Survey

@@ -177,6 +177,49 @@ func TestHousingFactorsReproduceDummyRecords(t *testing.T) {
 			}
 		}
 	}
+	checkPatternSplitSaturated(t, or)
+}
+
+// checkPatternSplitSaturated: with categorical predictors only, the
+// Pulkstenis-Robinson patterns are not cut, and the deviance statistic is
+// the likelihood ratio of the chosen model against the saturated model of
+// the pattern table, 2 (LL_sat - LL), LL_sat = sum O log(O / n_pattern)
+// computed here from the data; df = I(J - 1) - P.
+func checkPatternSplitSaturated(t *testing.T, or *OutcomeResult) {
+	t.Helper()
+	ps := or.PatternSplit
+	if ps == nil || ps.PatternSplit == nil {
+		t.Fatalf("Pulkstenis-Robinson tests not computed: %+v", ps)
+	}
+	if ps.Patterns != 24 || ps.Split != 0 || ps.Groups != 24 || strings.Join(ps.Predictors, " ") != "infl type cont" {
+		t.Errorf("patterns %d, split %d, groups %d, predictors %v; want 24, 0, 24", ps.Patterns, ps.Split, ps.Groups, ps.Predictors)
+	}
+	d, ds := or.FitData, or.Data
+	counts := map[string][]float64{}
+	for i := 0; i < ds.N; i++ {
+		key := fmt.Sprint(ds.X[i*ds.K : (i+1)*ds.K])
+		if counts[key] == nil {
+			counts[key] = make([]float64, d.J)
+		}
+		counts[key][d.Y[i]] += d.Weights[i]
+	}
+	llSat := 0.0
+	for _, c := range counts {
+		n := 0.0
+		for _, v := range c {
+			n += v
+		}
+		for _, v := range c {
+			if v > 0 {
+				llSat += v * math.Log(v/n)
+			}
+		}
+	}
+	res := or.Chosen.Result
+	want := 2 * (llSat - res.LogLik)
+	if !ps.Deviance.OK || math.Abs(ps.Deviance.Chi2-want) > 1e-6*want || ps.Deviance.DF != 24*2-res.NParams {
+		t.Errorf("%s: deviance %+v, want 2 (LL_sat - LL) = %.8f on %d df", or.Chosen.ID, ps.Deviance, want, 24*2-res.NParams)
+	}
 }
 
 func closeRel(got, want, tol float64) bool {

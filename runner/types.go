@@ -56,6 +56,9 @@ type OutcomeResult struct {
 	Nulls   []*NullRecord   // thresholds-only fit of each approach and link
 	Overall []OverallRecord // each usable candidate against its thresholds-only model
 	Lipsitz *fit.Lipsitz    // goodness of fit of the chosen model, by groups of its score
+	// PatternSplit: the Pulkstenis-Robinson tests of the chosen model
+	// (nil when not run: no chosen model).
+	PatternSplit *PatternSplitRecord
 
 	Hypotheses []HypothesisResult // the plan's hypotheses, per model
 

@@ -12,6 +12,8 @@ package fit_test
 //     binary glms on the expanded data;
 //   - the adjacent nonparallel logit equals multinom's multinomial logit;
 //   - frequency weights equal duplicated rows;
+//   - the Pulkstenis-Robinson statistics of two categories equal grouped
+//     statistics computed from glm's fitted values;
 //   - sandwich (with and without small-sample factor) and cluster-robust
 //     covariances equal a sandwich computed by hand in R from glm's score
 //     contributions and the observed information.
@@ -95,6 +97,7 @@ func TestAgainstR(t *testing.T) {
 	t.Run("frequency weights", testRFrequencyWeights)
 	t.Run("stage models", testRStage)
 	t.Run("multinomial logit", testRMultinomial)
+	t.Run("Pulkstenis-Robinson", testRPatternSplit)
 }
 
 // ---- comparisons of numbers
@@ -134,6 +137,16 @@ func (a *agreement) logLik(label string, got, want float64) {
 	a.note("log-likelihood", rel)
 	if !(rel <= tolLogLik) {
 		a.t.Errorf("%s: log-likelihood %.15g, R %.15g", label, got, want)
+	}
+}
+
+// stat compares a statistic relative to R's (tolEst).
+func (a *agreement) stat(label string, got, want float64) {
+	a.t.Helper()
+	rel := math.Abs(got-want) / math.Abs(want)
+	a.note("statistics", rel)
+	if !(rel <= tolEst) {
+		a.t.Errorf("%s: %.15g, R %.15g", label, got, want)
 	}
 }
 
@@ -582,4 +595,75 @@ func testRMultinomial(t *testing.T) {
 			a.errors(lab+" errors", b.Names, b.StdErrors, se, tolMultinom)
 		}
 	}
+}
+
+// testRPatternSplit: the Pulkstenis-Robinson statistics of a two-category
+// outcome, where they are grouped Pearson and deviance statistics of a
+// binary glm in the manner of the Hosmer-Lemeshow statistic, from glm's
+// fitted values (testdata/rcheck/patterns.R) against
+// fit.PulkstenisRobinsonTest on the same seeded data (simPatterns).
+func testRPatternSplit(t *testing.T) {
+	a := newAgreement(t)
+	defer a.report()
+	dir := workDir(t)
+	names, cols := simPatterns()
+	rscript.WriteCSV(t, filepath.Join(dir, "sim_pr.csv"), names, cols)
+	vals := rscript.Run(t, dir, rfile("common.R"), rfile("patterns.R"))
+	n := len(cols[0])
+	d := &fit.Data{J: 2, Predictors: []string{"a.2", "a.3", "b.2", "x"}}
+	pattern := make([]int, n)
+	for i := 0; i < n; i++ {
+		av, bv := cols[1][i], cols[2][i]
+		d.Y = append(d.Y, int(cols[0][i])-1)
+		d.X = append(d.X, b2f(av == 2), b2f(av == 3), b2f(bv == 2), cols[3][i])
+		pattern[i] = int(av-1)*2 + int(bv-1)
+	}
+	labels := []string{"a=1,b=1", "a=1,b=2", "a=2,b=1", "a=2,b=2", "a=3,b=1", "a=3,b=2"}
+	r, err := fit.Fit(d, fit.Model{Comparison: fit.Cumulative, Link: fit.Logit, Effects: make([]fit.Effect, 4)}, fit.Options{})
+	if err != nil || !r.OK() {
+		t.Fatal(err)
+	}
+	a.logLik("glm", r.LogLik, vals.Scalar(t, "pr_loglik"))
+	ps, err := fit.PulkstenisRobinsonTest(d, r, pattern, labels, []string{"a.2", "a.3", "b.2"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if float64(ps.Groups) != vals.Scalar(t, "pr_groups") || ps.Groups != 12 {
+		t.Errorf("groups %d, R %g", ps.Groups, vals.Scalar(t, "pr_groups"))
+	}
+	a.stat("Pearson statistic", ps.Pearson.Chi2, vals.Scalar(t, "pr_pearson"))
+	a.stat("deviance statistic", ps.Deviance.Chi2, vals.Scalar(t, "pr_deviance"))
+	// (2I - 1)(J - 1) - k - 1 with I = 6, J = 2, k = 3.
+	if ps.Pearson.DF != 7 {
+		t.Errorf("df %d, want 7", ps.Pearson.DF)
+	}
+	t.Logf("Pearson %.6f, deviance %.6f on %d df", ps.Pearson.Chi2, ps.Deviance.Chi2, ps.Pearson.DF)
+}
+
+func b2f(b bool) float64 {
+	if b {
+		return 1
+	}
+	return 0
+}
+
+// simPatterns is seeded data of our own: 500 rows, a uniform on {1,2,3},
+// b on {1,2}, x ~ N(0,1); category 2 when 0.4 (a = 2) - 0.6 (a = 3) +
+// 0.5 (b = 2) + 0.9 x + e > 0.2, e standard logistic.
+func simPatterns() (names []string, cols [][]float64) {
+	rng := rand.New(rand.NewPCG(20261202, 18))
+	cols = make([][]float64, 4)
+	for i := 0; i < 500; i++ {
+		av, bv, x := float64(1+rng.IntN(3)), float64(1+rng.IntN(2)), rng.NormFloat64()
+		p := rng.Float64()
+		eta := 0.4*b2f(av == 2) - 0.6*b2f(av == 3) + 0.5*b2f(bv == 2) + 0.9*x + math.Log(p/(1-p))
+		y := 1.0
+		if eta > 0.2 {
+			y = 2
+		}
+		for j, v := range []float64{y, av, bv, x} {
+			cols[j] = append(cols[j], v)
+		}
+	}
+	return []string{"y", "a", "b", "x"}, cols
 }

@@ -54,54 +54,21 @@ func GroupByScore(d *Data, r *Result, groups int) (*ScoreGroups, error) {
 	if d.J != r.J || len(d.Predictors) != len(r.Predictors) {
 		return nil, fmt.Errorf("the data do not match %s", r.Name)
 	}
-	n, K, J := d.N(), len(d.Predictors), d.J
+	n, J := d.N(), d.J
 	if groups <= 0 {
 		groups = DefaultScoreGroups(d.nobs(), J)
 	}
-	w := func(i int) float64 {
-		if d.Weights == nil {
-			return 1
-		}
-		return d.Weights[i]
-	}
+	w := d.weightOf
 	// Phase 1: scores and probabilities.
-	probs := make([]float64, n*J)
-	score := make([]float64, n)
-	for i := 0; i < n; i++ {
-		off := 0.0
-		if d.Offset != nil {
-			off = d.Offset[i]
-		}
-		p := probs[i*J : (i+1)*J]
-		pr.probsAt(r.Estimates, d.X[i*K:(i+1)*K], off, p)
-		for j, v := range p {
-			score[i] += float64(j+1) * v
-		}
-	}
+	probs, score := scoresOf(d, r, pr)
 	// Phase 2: groups of about equal weight; a run of equal scores goes
 	// to the group of its weighted midpoint.
 	order := make([]int, n)
 	for i := range order {
 		order[i] = i
 	}
-	sort.SliceStable(order, func(a, b int) bool { return score[order[a]] < score[order[b]] })
-	total := d.nobs()
 	raw := make([]int, n)
-	cum := 0.0
-	for a := 0; a < n; {
-		b := a
-		tw := 0.0
-		for b < n && score[order[b]] == score[order[a]] {
-			tw += w(order[b])
-			b++
-		}
-		g := min(groups-1, int(math.Floor(float64(groups)*(cum+tw/2)/total)))
-		for c := a; c < b; c++ {
-			raw[order[c]] = g
-		}
-		cum += tw
-		a = b
-	}
+	cutByScore(order, score, w, groups, raw)
 	// Renumber the groups that received weight: 0, 1, ...
 	used := make([]float64, groups)
 	for i := 0; i < n; i++ {
@@ -203,4 +170,62 @@ func LipsitzTest(d *Data, r *Result, groups int, opt Options) (*Lipsitz, error) 
 	out.Test = LRTest(r, full)
 	out.Test.Name = "lipsitz"
 	return out, nil
+}
+
+// weightOf is row i's weight (1 without weights).
+func (d *Data) weightOf(i int) float64 {
+	if d.Weights == nil {
+		return 1
+	}
+	return d.Weights[i]
+}
+
+// scoresOf gives every row's predicted probabilities (n x J, row-major)
+// and its ordinal score sum_j j P(y=j) (categories scored 1..J).
+func scoresOf(d *Data, r *Result, pr *problem) (probs, score []float64) {
+	n, K, J := d.N(), len(d.Predictors), d.J
+	probs = make([]float64, n*J)
+	score = make([]float64, n)
+	for i := 0; i < n; i++ {
+		off := 0.0
+		if d.Offset != nil {
+			off = d.Offset[i]
+		}
+		p := probs[i*J : (i+1)*J]
+		pr.probsAt(r.Estimates, d.X[i*K:(i+1)*K], off, p)
+		for j, v := range p {
+			score[i] += float64(j+1) * v
+		}
+	}
+	return probs, score
+}
+
+// cutByScore sorts the rows listed in order by score (stably) and cuts
+// them into groups of about equal weight, writing each row's group
+// (0..groups-1) into out: a run of equal scores goes, whole, to the group
+// of its weighted midpoint, so groups may stay empty.
+func cutByScore(order []int, score []float64, w func(int) float64, groups int, out []int) {
+	sort.SliceStable(order, func(a, b int) bool { return score[order[a]] < score[order[b]] })
+	total := 0.0
+	for _, i := range order {
+		total += w(i)
+	}
+	cum := 0.0
+	for a := 0; a < len(order); {
+		b := a
+		tw := 0.0
+		for b < len(order) && score[order[b]] == score[order[a]] {
+			tw += w(order[b])
+			b++
+		}
+		g := 0
+		if total > 0 {
+			g = min(groups-1, int(math.Floor(float64(groups)*(cum+tw/2)/total)))
+		}
+		for c := a; c < b; c++ {
+			out[order[c]] = g
+		}
+		cum += tw
+		a = b
+	}
 }
