@@ -31,6 +31,8 @@ type ImputedRun struct {
 	Sets []*fit.Data     `json:"-"`
 	Data []*data.Dataset `json:"-"`
 	Fits [][]*FitEntry   `json:"-"`
+	// brant is the Brant construction of every set, made once.
+	brant *pooledBrant
 }
 
 // imputedSets reads the imputed sets of an outcome, checks that they are
@@ -272,14 +274,24 @@ func meanRows(shape [][]float64, perSet [][]*FitEntry, i int, get func(*fit.Resu
 }
 
 // pooledTestBlock is testBlock on imputed data: likelihood-ratio tests
-// pooled by D3, Wald tests by D1; the other tests are not pooled.
-func pooledTestBlock(p *plan.Plan, or *OutcomeResult, perSet [][]*FitEntry, approach fit.Comparison, link fit.Link) *TestBlock {
+// pooled by D3, Wald and Brant tests by D1, score and Wolfe-Gould tests by
+// D2 (pooledtests.go).
+func pooledTestBlock(p *plan.Plan, or *OutcomeResult, perSet [][]*FitEntry, approach fit.Comparison, link fit.Link, fopt fit.Options) *TestBlock {
 	tb := &TestBlock{Approach: approach, Link: link}
 	cell := func(s fit.Structure) *FitEntry { return or.Cell(approach, s, link) }
 	par, np := cell(fit.ParallelEffects), cell(fit.NonparallelEffects)
 	lr := func(r, f *FitEntry) fit.Test { return pooledLR(or, perSet, r, f) }
-	notPooled := func(kind fit.TestKind) fit.Test {
-		return missingTest(kind, "not pooled over imputed data sets (the likelihood-ratio and Wald tests are)")
+	score := func(cols []string) fit.Test {
+		if par == nil {
+			return missingTest(fit.TestScore, "the parallel model was not fitted")
+		}
+		spec := par.Spec
+		spec.Nonparallel = cols
+		m, err := spec.Model()
+		if err != nil {
+			return missingTest(fit.TestScore, err.Error())
+		}
+		return pooledScore(or, par, m)
 	}
 	cumLogit := approach == fit.Cumulative && link == fit.Logit
 	for _, kind := range p.Tests.ParallelLines {
@@ -289,10 +301,14 @@ func pooledTestBlock(p *plan.Plan, or *OutcomeResult, perSet [][]*FitEntry, appr
 		case fit.TestWald:
 			tb.Global = append(tb.Global, pooledEqualSlopes(np, allColumns(or.Terms)))
 		case fit.TestScore:
-			tb.Global = append(tb.Global, notPooled(kind))
-		case fit.TestBrant, fit.TestWolfeGould:
+			tb.Global = append(tb.Global, score(allColumns(or.Terms)))
+		case fit.TestBrant:
 			if cumLogit {
-				tb.Global = append(tb.Global, notPooled(kind))
+				tb.Global = append(tb.Global, or.pooledBrant(fopt).test(allColumns(or.Terms)))
+			}
+		case fit.TestWolfeGould:
+			if cumLogit {
+				tb.Global = append(tb.Global, pooledWolfeGould(or, fopt))
 			}
 		}
 	}
@@ -300,6 +316,12 @@ func pooledTestBlock(p *plan.Plan, or *OutcomeResult, perSet [][]*FitEntry, appr
 		vt := VarTests{Predictor: term.Name}
 		for _, kind := range p.Tests.ParallelLines {
 			switch kind {
+			case fit.TestBrant:
+				if cumLogit {
+					vt.Tests = append(vt.Tests, or.pooledBrant(fopt).test(term.Columns))
+				}
+			case fit.TestScore:
+				vt.Tests = append(vt.Tests, score(term.Columns))
 			case fit.TestWald:
 				vt.Tests = append(vt.Tests, pooledEqualSlopes(np, term.Columns))
 			case fit.TestLR:
@@ -436,7 +458,7 @@ func runImputedOutcome(p *plan.Plan, a *Analysis, r Reading, oc plan.Outcome, op
 	run.Fits = perSet
 	for _, a := range p.Models.Approaches {
 		for _, l := range p.Models.Links {
-			or.Tests = append(or.Tests, pooledTestBlock(p, or, perSet, a, l))
+			or.Tests = append(or.Tests, pooledTestBlock(p, or, perSet, a, l, fopt))
 		}
 	}
 	applyRules(p, or)

@@ -11,6 +11,7 @@ import (
 	"testing"
 
 	"ordplan/plan"
+	"ordplan/runner/fit"
 	"ordplan/runner/impute"
 )
 
@@ -76,7 +77,7 @@ data: ` + data + `
 outcomes: [{column: y}]
 predictors: [x1, x2]
 models: {approaches: [cumulative], effects: [parallel, nonparallel]}
-tests: {parallel_lines: [lr, wald]}
+tests: {parallel_lines: [lr, wald, score, brant, wolfe_gould]}
 rules:
   - reject_if_test_rejects: {test: lr}
   - choose: {by: bic}
@@ -131,6 +132,35 @@ func TestImputedIdenticalSets(t *testing.T) {
 	ti, ts := oi.Tests[0].Nested[0].Test, os1.Tests[0].Nested[0].Test
 	if ti.Pooled != "D3" || math.Abs(ti.Chi2-ts.Chi2) > 1e-6 || math.Abs(ti.P-ts.P) > 1e-9 {
 		t.Errorf("D3 %+v vs single-set LR %+v", ti, ts)
+	}
+	// Every parallel-lines test pooled over identical sets is the
+	// single-set test: Brant by D1, score and Wolfe-Gould by D2 (r = 0).
+	methods := map[string]string{"lr": "D3", "wald": "D1", "score": "D2", "brant": "D1", "wolfe_gould": "D2"}
+	gi, gs := oi.Tests[0].Global, os1.Tests[0].Global
+	if len(gi) != 5 || len(gs) != 5 {
+		t.Fatalf("global tests: %d pooled, %d single", len(gi), len(gs))
+	}
+	same := func(what string, a, b fit.Test) {
+		t.Helper()
+		if !a.OK || !b.OK || a.Pooled != methods[b.Name] || math.Abs(a.Chi2-b.Chi2) > 1e-6*math.Max(1, b.Chi2) || math.Abs(a.P-b.P) > 1e-9 || a.DF != b.DF {
+			t.Errorf("%s: pooled %+v, single %+v", what, a, b)
+		}
+	}
+	for i := range gs {
+		same(gs[i].Name, gi[i], gs[i])
+	}
+	for v, vt := range os1.Tests[0].PerVariable {
+		for i, tt := range vt.Tests {
+			same(vt.Predictor+" "+tt.Name, oi.Tests[0].PerVariable[v].Tests[i], tt)
+		}
+	}
+	// The plan's test rule uses the pooled test (D3 here), which is the
+	// single-set test.
+	for i, v := range oi.Rules[0].Verdicts {
+		w := os1.Rules[0].Verdicts[i]
+		if v.Model != w.Model || v.Kept != w.Kept || v.Model == "cumulative/parallel/logit" && !strings.Contains(v.Reason, "(pooled, D3)") {
+			t.Errorf("rule verdict on %s: %+v, single-set %+v", v.Model, v, w)
+		}
 	}
 	// D1 of identical sets is the single-set Wald test (chi-square p).
 	for i, h := range oi.Hypotheses {
@@ -245,6 +275,11 @@ func TestImputedDifferentSets(t *testing.T) {
 	}
 	if len(or.Hypotheses) == 0 || or.Hypotheses[0].Test.Pooled != "D1" || !or.Hypotheses[0].Test.OK {
 		t.Errorf("hypothesis on imputed data: %+v", or.Hypotheses)
+	}
+	for i, want := range []string{"D3", "D1", "D2", "D1", "D2"} {
+		if g := or.Tests[0].Global[i]; !g.OK || g.Pooled != want || !(g.DF2 > 0) || !(g.P > 0 && g.P <= 1) {
+			t.Errorf("global test %d: %+v, want pooled by %s with finite df2", i, g, want)
+		}
 	}
 	if nt := or.Tests[0].Nested[0].Test; nt.Pooled != "D3" || !(nt.DF2 > 0) || !strings.Contains(TestStatistic(nt), "(pooled, D3)") {
 		t.Errorf("nested test %+v: %s", nt, TestStatistic(nt))

@@ -45,6 +45,9 @@ func newRuleEnv(p *plan.Plan, or *OutcomeResult) *ruleEnv {
 	}
 	var brant *fit.BrantResult
 	env.test = func(kind fit.TestKind, f, full *FitEntry) fit.Test {
+		if or.Imputed != nil {
+			return pooledPairTest(or, kind, f, full)
+		}
 		if kind == fit.TestBrant && brant == nil {
 			brant = fit.Brant(or.FitData, fit.Options{Workers: 1})
 		}

@@ -1,6 +1,7 @@
 package fit
 
 import (
+	"errors"
 	"fmt"
 	"strings"
 
@@ -29,21 +30,51 @@ func (br *BrantResult) Joint(names []string) Test {
 	if !br.OK {
 		return failedTest(TestBrant.String(), "%s", br.Reason)
 	}
-	K := len(br.predictors)
-	q := len(br.Slopes)
-	var rows [][]float64
-	for _, n := range names {
-		k := indexOf(br.predictors, n)
-		if k < 0 {
-			return failedTest(TestBrant.String(), "%s is not a predictor", n)
-		}
-		rows = append(rows, equalSlopeRows(k, q, K)...)
+	rows, err := br.equalSlopes(names)
+	if err != nil {
+		return failedTest(TestBrant.String(), "%v", err)
 	}
 	x, err := waldStat(rows, br.beta, br.cov)
 	if err != nil {
 		return failedTest(TestBrant.String(), "%v", err)
 	}
 	return chi2Test(TestBrant.String(), x, len(rows))
+}
+
+// equalSlopes are the rows of the hypothesis that every predictor in
+// names has the same slope in every binary logit (columns: the stacked
+// slopes).
+func (br *BrantResult) equalSlopes(names []string) ([][]float64, error) {
+	K := len(br.predictors)
+	q := len(br.Slopes)
+	var rows [][]float64
+	for _, n := range names {
+		k := indexOf(br.predictors, n)
+		if k < 0 {
+			return nil, fmt.Errorf("%s is not a predictor", n)
+		}
+		rows = append(rows, equalSlopeRows(k, q, K)...)
+	}
+	return rows, nil
+}
+
+// Stacked returns the binary logits' slopes, stacked logit by logit, their
+// joint covariance (row-major), and the rows (row-major, one per
+// restriction) of the hypothesis that every predictor in names has the
+// same slope in every binary logit: what a Wald test pooled over imputed
+// data sets needs. It fails when the test could not be computed.
+func (br *BrantResult) Stacked(names []string) (beta, cov, rows []float64, err error) {
+	if !br.OK {
+		return nil, nil, nil, errors.New(br.Reason)
+	}
+	r, err := br.equalSlopes(names)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	for _, row := range r {
+		rows = append(rows, row...)
+	}
+	return br.beta, br.cov, rows, nil
 }
 
 // binaryFits fits the J-1 binary logits of 1[y > m].
