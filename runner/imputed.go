@@ -1,10 +1,8 @@
 package runner
 
 import (
-	"bytes"
-	"encoding/csv"
+	"errors"
 	"fmt"
-	"io"
 	"math"
 	"slices"
 	"strconv"
@@ -122,48 +120,23 @@ func imputedSets(p *plan.Plan, r Reading) (*ImputedRun, []*data.Dataset, *design
 // (the original data, not analysed) or 1..m without gaps, m >= 2, and
 // every set must have as many rows as set 1.
 func imputationNumbers(p *plan.Plan, im *plan.Imputed) (int, error) {
-	raw, err := data.ReadFile(im.Path)
-	if err != nil {
-		return 0, fmt.Errorf("%s: data.imputed.file: %v", p.Path, err)
-	}
-	r := csv.NewReader(bytes.NewReader(raw))
-	r.Comma = p.Data.Dialect().Delimiter
-	if r.Comma == 0 {
-		r.Comma = ','
-	}
-	r.FieldsPerRecord = -1
-	head, err := r.Read()
-	if err != nil {
-		return 0, fmt.Errorf("%s: data.imputed.file: %s: cannot read the header: %v", p.Path, im.File, err)
-	}
-	col := -1
-	for i, h := range head {
-		if strings.TrimSpace(strings.TrimPrefix(h, "\ufeff")) == im.Column {
-			col = i
-		}
-	}
-	if col < 0 {
-		return 0, fmt.Errorf("%s: data.imputed.column: column %q is not in %s", p.Path, im.Column, im.File)
-	}
 	rows := map[int]int{}
-	for {
-		rec, err := r.Read()
-		if err == io.EOF {
-			break
-		}
-		line, _ := r.FieldPos(0)
-		if err != nil {
-			return 0, fmt.Errorf("%s: data.imputed.file: %s: %v", p.Path, im.File, err)
-		}
-		if col >= len(rec) {
-			return 0, fmt.Errorf("%s:%d: column %s: the line has no cell for the imputation number", im.File, line, im.Column)
-		}
-		cell := strings.TrimSpace(rec[col])
+	err := data.ColumnCells(im.Path, p.Data.Dialect(), im.Column, func(line int, cell string) error {
 		k, err := strconv.Atoi(cell)
 		if err != nil || k < 0 {
-			return 0, fmt.Errorf("%s:%d: column %s: imputation number %q is not a whole number 0 or more (0 marks the original data)", im.File, line, im.Column, cell)
+			return fmt.Errorf("%s:%d: column %s: imputation number %q is not a whole number 0 or more (0 marks the original data)", im.File, line, im.Column, cell)
 		}
 		rows[k]++
+		return nil
+	})
+	var de *data.Error
+	switch {
+	case errors.As(err, &de) && de.Line == 0 && de.Column == im.Column:
+		return 0, fmt.Errorf("%s: data.imputed.column: column %q is not in %s", p.Path, im.Column, im.File)
+	case errors.As(err, &de):
+		return 0, fmt.Errorf("%s: data.imputed.file: %v", p.Path, err)
+	case err != nil:
+		return 0, err
 	}
 	var nums []int
 	for k := range rows {

@@ -7,12 +7,15 @@ import (
 	"os"
 	"path/filepath"
 	"slices"
+	"strconv"
 	"strings"
 	"testing"
 
 	"ordplan/plan"
 	"ordplan/runner/fit"
 	"ordplan/runner/impute"
+
+	"github.com/xuri/excelize/v2"
 )
 
 // imputedFixture writes an invented survey (seeded): y in three ordered
@@ -340,5 +343,64 @@ func TestImputedBadInput(t *testing.T) {
 	}
 	if _, err := imputedPlan(t, dir, "{file: orig.csv, imputed: {files: [a.csv]}}"); err == nil || !strings.Contains(err.Error(), "lists 1 file; pooling over imputed data needs at least two imputed sets") {
 		t.Errorf("one file: %v", err)
+	}
+}
+
+// TestImputedStackedWorkbook: the imputation numbers of a stacked file are
+// read like its data, through the file's format and dialect: the same sets
+// as an .xlsx workbook (header in row 2 of a named sheet) and as
+// semicolon-separated text with decimal commas give the fits of the CSV
+// file, bit for bit.
+func TestImputedStackedWorkbook(t *testing.T) {
+	dir := imputedFixture(t, 3, false)
+	raw, err := os.ReadFile(filepath.Join(dir, "stacked.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(raw)), "\n")
+	book := excelize.NewFile()
+	book.NewSheet("sets")
+	book.SetCellValue("sets", "A1", "imputed sets, stacked")
+	for i, ln := range lines {
+		for j, c := range strings.Split(ln, ",") {
+			cell, _ := excelize.CoordinatesToCellName(j+1, i+2)
+			if v, err := strconv.ParseFloat(c, 64); err == nil && i > 0 {
+				book.SetCellValue("sets", cell, v)
+			} else if c != "" {
+				book.SetCellValue("sets", cell, c)
+			}
+		}
+	}
+	if err := book.SaveAs(filepath.Join(dir, "stacked.xlsx")); err != nil {
+		t.Fatal(err)
+	}
+	semi := func(s string) string {
+		return strings.ReplaceAll(strings.ReplaceAll(s, ",", ";"), ".", ",")
+	}
+	for _, f := range []string{"orig", "stacked"} {
+		b, _ := os.ReadFile(filepath.Join(dir, f+".csv"))
+		os.WriteFile(filepath.Join(dir, f+"-semi.csv"), []byte(semi(string(b))), 0o644)
+	}
+	estimates := func(data string) []float64 {
+		t.Helper()
+		p, err := imputedPlan(t, dir, data)
+		if err != nil {
+			t.Fatal(err)
+		}
+		r := runPlan(t, p, 1)
+		f := r.Outcomes[0].Find("cumulative/nonparallel/logit")
+		if r.Outcomes[0].Imputed == nil || r.Outcomes[0].Imputed.M != 3 || !f.OK() {
+			t.Fatalf("%s: imputed run %+v", data, r.Outcomes[0].Imputed)
+		}
+		return append(f.Result.Estimates, f.Result.StdErrors...)
+	}
+	want := estimates("{file: orig.csv, imputed: {file: stacked.csv, column: imp}}")
+	for _, data := range []string{
+		"{file: orig.csv, sheet: sets, header_row: 2, imputed: {file: stacked.xlsx, column: imp}}",
+		"{file: orig-semi.csv, delimiter: semicolon, decimal: comma, imputed: {file: stacked-semi.csv, column: imp}}",
+	} {
+		if got := estimates(data); !slices.Equal(got, want) {
+			t.Errorf("%s: estimates and errors %v, want %v", data, got, want)
+		}
 	}
 }

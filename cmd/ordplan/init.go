@@ -17,7 +17,11 @@ const initUsage = "usage: ordplan init PLAN.yaml [--data FILE | --header \"a,b,c
 // cmdInit writes a commented plan skeleton; it never overwrites a file.
 func cmdInit(args []string, stdout, stderr io.Writer) int {
 	fs := newFlags("init", stderr)
-	dataFile := fs.String("data", "", "CSV data file: its columns are listed with the kind of values found")
+	dataFile := fs.String("data", "", "the data file (CSV text, an .xlsx workbook or a flat Parquet file): its columns are listed with the kind of values found")
+	delimiter := fs.String("delimiter", "", "the character between the CSV file's fields: comma, semicolon or tab (default: as the file's header shows)")
+	decimal := fs.String("decimal", "", "the decimal mark of the CSV file's numbers: point or comma (default: as the file's numbers show)")
+	sheet := fs.String("sheet", "", "for an .xlsx workbook: the worksheet to read (default: the first)")
+	headerRow := fs.Int("header-row", 1, "for an .xlsx workbook: the sheet row holding the column names")
 	header := fs.String("header", "", "the columns, comma separated, when there are no data yet")
 	outcome := fs.String("outcome", "", "the ordinal outcome column (default: guessed, marked EDIT)")
 	planPath, stop, code := planArg(fs, args, initUsage, stderr)
@@ -31,11 +35,25 @@ func cmdInit(args []string, stdout, stderr io.Writer) int {
 	}
 	in := skeleton.Input{Outcome: *outcome}
 	if *dataFile != "" {
-		cols, err := data.ProfileFile(*dataFile, nil)
+		d, detected, msg := initDialect(*dataFile, *delimiter, *decimal, *sheet, *headerRow)
+		if msg != "" {
+			fmt.Fprintf(stderr, "ordplan init: %s\n", msg)
+			return exitUsage
+		}
+		if detected {
+			// The dialect is read from the file's first lines.
+			raw, err := data.ReadFile(*dataFile)
+			if err != nil {
+				return fail(stderr, err)
+			}
+			d = data.DetectDialect(raw)
+		}
+		cols, err := data.ProfileFile(*dataFile, nil, d)
 		if err != nil {
 			return fail(stderr, err)
 		}
 		in.Columns, in.HaveData = cols, true
+		in.Dialect, in.DialectFound = d, detected
 		in.DataFile = relativeTo(planPath, *dataFile)
 	} else {
 		names, err := data.ReadHeader(strings.NewReader(*header+"\n"), "--header")
@@ -74,4 +92,25 @@ func relativeTo(planPath, file string) string {
 		return filepath.ToSlash(rel)
 	}
 	return filepath.ToSlash(fa)
+}
+
+// initDialect is the dialect the flags of init give for the data file, or
+// detected (true) when a CSV file's flags leave both the delimiter and the
+// decimal mark to the file; msg says what is wrong with the flags.
+func initDialect(file, delimiter, decimal, sheet string, headerRow int) (data.Dialect, bool, string) {
+	book := data.IsWorkbook(file)
+	switch {
+	case headerRow < 1:
+		return data.Dialect{}, false, fmt.Sprintf("--header-row must be a sheet row number, 1 or more (got %d)", headerRow)
+	case (sheet != "" || headerRow != 1) && !book:
+		return data.Dialect{}, false, "--sheet and --header-row are for .xlsx workbooks; the data file is not named *.xlsx"
+	case (delimiter != "" || decimal != "") && (book || data.IsParquet(file)):
+		return data.Dialect{}, false, "--delimiter and --decimal are for CSV text; the data file is a workbook or a Parquet file"
+	}
+	d, err := data.ParseDialect(delimiter, decimal)
+	if err != nil {
+		return d, false, "--delimiter/--decimal: " + err.Error()
+	}
+	d.Sheet, d.HeaderRow = sheet, headerRow
+	return d, !book && !data.IsParquet(file) && delimiter == "" && decimal == "", ""
 }

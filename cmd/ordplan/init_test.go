@@ -96,3 +96,65 @@ func TestInitCategorical(t *testing.T) {
 		t.Fatalf("not a valid plan: %v\n%s", err, text)
 	}
 }
+
+// ordplan init profiles the data in their dialect: a semicolon-separated
+// file with decimal commas (found from its first lines, or given by
+// flags), a workbook's named sheet from its header row, a Parquet file;
+// each gives the profile of the comma/point CSV file, and the skeleton
+// names the dialect, so that check reads the file as init did.
+func TestInitFollowsDialect(t *testing.T) {
+	dir := t.TempDir()
+	csv := "id,grade,dose,smoker,site\np1,2,1.5,0,north\np2,1,0.5,1,south\np3,3,2.25,0,north\np4,2,,1,east\np5,1,1.0,0,south\n"
+	files := map[string][]byte{
+		"d.csv":     []byte(csv),
+		"semi.csv":  toSemicolonComma([]byte(csv)),
+		"d.xlsx":    toWorkbook(t, []byte(csv)),
+		"d.parquet": toParquet(t, []byte(csv)),
+	}
+	for n, b := range files {
+		if err := os.WriteFile(filepath.Join(dir, n), b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	profile := []string{
+		"#   grade   integer codes 1, 2, 3 (3 values): ordered categories, or a count?",
+		"#   dose    numeric from 0.5 to 2.25; 1 of 5 missing",
+		"#   smoker  numeric 0/1",
+		"predictors: [dose, smoker]",
+	}
+	for i, c := range []struct {
+		args []string
+		want []string
+	}{
+		{[]string{"--data", "d.csv"}, []string{"  delimiter: comma        # comma | semicolon | tab (as the file's first lines show)", "  decimal: point"}},
+		{[]string{"--data", "semi.csv"}, []string{"  delimiter: semicolon    # comma | semicolon | tab (as the file's first lines show)", "  decimal: comma"}},
+		{[]string{"--data", "semi.csv", "--delimiter", "semicolon", "--decimal", "comma"}, []string{"  delimiter: semicolon    # comma | semicolon | tab\n", "  decimal: comma"}},
+		{[]string{"--data", "d.xlsx", "--sheet", "survey", "--header-row", "3"}, []string{"  sheet: survey\n  header_row: 3"}},
+		{[]string{"--data", "d.parquet"}, []string{"  file: d.parquet\n  missing: drop"}},
+	} {
+		p := filepath.Join(dir, "p"+strconv.Itoa(i)+".yaml")
+		c.args[1] = filepath.Join(dir, c.args[1])
+		if out, errs, code := runCLI(append([]string{"init", p}, c.args...)...); code != 0 {
+			t.Fatalf("init %v: exit %d %s %s", c.args, code, out, errs)
+		}
+		text, _ := os.ReadFile(p)
+		for _, w := range append(c.want, profile...) {
+			if !strings.Contains(string(text), w) {
+				t.Errorf("init %v: want %q in\n%s", c.args, w, text)
+			}
+		}
+		if _, errs, code := runCLI("check", p); code != 0 {
+			t.Errorf("check of the skeleton of %v: exit %d: %s", c.args, code, errs)
+		}
+	}
+	for _, c := range []struct{ args []string }{
+		{[]string{"--data", "d.csv", "--sheet", "x"}},
+		{[]string{"--data", "d.xlsx", "--decimal", "comma"}},
+		{[]string{"--data", "d.xlsx", "--header-row", "0"}},
+	} {
+		c.args[1] = filepath.Join(dir, c.args[1])
+		if _, errs, code := runCLI(append([]string{"init", filepath.Join(dir, "bad.yaml")}, c.args...)...); code != 2 || !strings.Contains(errs, "ordplan init: --") {
+			t.Errorf("init %v: exit %d %s", c.args, code, errs)
+		}
+	}
+}

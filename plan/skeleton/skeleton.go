@@ -16,6 +16,11 @@ type Input struct {
 	Columns  []data.Profile // with Rows == 0 when only a header is known
 	HaveData bool           // false: only the header is known
 	Outcome  string         // chosen outcome column ("" = guess)
+	// Dialect is how the data file was read (delimiter and decimal mark of
+	// CSV text, sheet and header row of a workbook); DialectFound says
+	// that the delimiter and decimal mark were read off the file.
+	Dialect      data.Dialect
+	DialectFound bool
 }
 
 // Kind says what a column seems to be.
@@ -151,6 +156,7 @@ func Write(in Input) ([]byte, error) {
 	w("")
 	w("data:")
 	w("  file: %s", yamlString(in.DataFile))
+	writeDialect(w, in)
 	w("  missing: drop           # drop rows with a missing value (counted in the report), or refuse")
 	w("  missing_values: [\"\", \"NA\", \"NaN\", \".\"]   # cells that mean \"missing\"")
 	w("  weights: null           # a column of case weights")
@@ -274,4 +280,28 @@ func yamlList(xs []string) string {
 		q[i] = yamlString(x)
 	}
 	return strings.Join(q, ", ")
+}
+
+// writeDialect writes the data keys that say how the file is read: the
+// delimiter and decimal mark of CSV text, the sheet and header row of a
+// workbook (a Parquet file needs none).
+func writeDialect(w func(string, ...any), in Input) {
+	d := in.Dialect
+	switch {
+	case data.IsParquet(in.DataFile):
+	case data.IsWorkbook(in.DataFile):
+		if d.Sheet != "" {
+			w("  sheet: %s", yamlString(d.Sheet))
+		} else {
+			w("  # sheet: NAME        # the worksheet to read (default: the first)")
+		}
+		w("  header_row: %-10d # the sheet row holding the column names", max(d.HeaderRow, 1))
+	default:
+		how := ""
+		if in.HaveData && in.DialectFound {
+			how = " (as the file's first lines show)"
+		}
+		w("  delimiter: %-12s # %s%s", d.DelimiterWord(), strings.Join(data.DelimiterWords, " | "), how)
+		w("  decimal: %-14s # %s: 1.5 or 1,5", d.DecimalWord(), strings.Join(data.DecimalWords, " | "))
+	}
 }

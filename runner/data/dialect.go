@@ -124,6 +124,33 @@ func checkUTF8(head []byte) string {
 // when they look written in another dialect than d, says which plan keys
 // would read them; "" when nothing suggests another dialect.
 func SuggestDialect(raw []byte, d Dialect) string {
+	want, ok := guessDialect(raw, d)
+	if !ok || want.delim() == d.delim() && want.DecimalComma == d.DecimalComma {
+		return ""
+	}
+	var keys []string
+	if want.delim() != d.delim() {
+		keys = append(keys, "delimiter: "+want.DelimiterWord())
+	}
+	if want.DecimalComma != d.DecimalComma {
+		keys = append(keys, "decimal: "+want.DecimalWord())
+	}
+	return fmt.Sprintf("the file looks %s-separated with a decimal %s, but is read as %s-separated with a decimal %s: set %s under data (ordplan fit: --delimiter %s --decimal %s)",
+		want.DelimiterWord(), want.DecimalWord(), d.DelimiterWord(), d.DecimalWord(), strings.Join(keys, " and "), want.DelimiterWord(), want.DecimalWord())
+}
+
+// DetectDialect is the dialect the first lines of a CSV file (its bytes)
+// look written in: the delimiter the header holds most of (comma when it
+// holds none), and a decimal comma when the cells of a file not separated
+// by commas write numbers as 1,5 and none as 1.5.
+func DetectDialect(raw []byte) Dialect {
+	d, _ := guessDialect(raw, Dialect{})
+	return d
+}
+
+// guessDialect is d changed where the first lines of raw look written
+// otherwise (false: no header line to look at).
+func guessDialect(raw []byte, d Dialect) (Dialect, bool) {
 	raw = bytes.TrimPrefix(raw, utf8BOM)
 	head := raw[:min(len(raw), 64<<10)]
 	lines := strings.Split(strings.ReplaceAll(string(head), "\r\n", "\n"), "\n")
@@ -131,7 +158,7 @@ func SuggestDialect(raw []byte, d Dialect) string {
 		lines = lines[:len(lines)-1] // the last one may be cut
 	}
 	if len(lines) == 0 || strings.TrimSpace(lines[0]) == "" {
-		return ""
+		return d, false
 	}
 	hdr := lines[0]
 	count := func(c rune) int { return strings.Count(hdr, string(c)) }
@@ -172,16 +199,5 @@ func SuggestDialect(raw []byte, d Dialect) string {
 			want.DecimalComma = false
 		}
 	}
-	if want.delim() == d.delim() && want.DecimalComma == d.DecimalComma {
-		return ""
-	}
-	var keys []string
-	if want.delim() != d.delim() {
-		keys = append(keys, "delimiter: "+want.DelimiterWord())
-	}
-	if want.DecimalComma != d.DecimalComma {
-		keys = append(keys, "decimal: "+want.DecimalWord())
-	}
-	return fmt.Sprintf("the file looks %s-separated with a decimal %s, but is read as %s-separated with a decimal %s: set %s under data (ordplan fit: --delimiter %s --decimal %s)",
-		want.DelimiterWord(), want.DecimalWord(), d.DelimiterWord(), d.DecimalWord(), strings.Join(keys, " and "), want.DelimiterWord(), want.DecimalWord())
+	return want, true
 }

@@ -4,7 +4,6 @@ import (
 	"io"
 	"math"
 	"slices"
-	"strconv"
 	"strings"
 )
 
@@ -26,15 +25,17 @@ type Profile struct {
 // MaxValues is the number of distinct values a profile lists.
 const MaxValues = 30
 
-// ProfileFile reads a CSV file and profiles every column. Values are
-// listed in order of first appearance, or numerically for numbers.
-func ProfileFile(path string, missingTokens []string) ([]Profile, error) {
+// ProfileFile reads a data file in the given dialect (delimiter and
+// decimal mark of CSV text, sheet and header row of a workbook; a Parquet
+// file needs none) and profiles every column. Values are listed in order
+// of first appearance, or numerically for numbers.
+func ProfileFile(path string, missingTokens []string, d Dialect) ([]Profile, error) {
 	f, err := openData(path)
 	if err != nil {
 		return nil, err
 	}
 	defer f.Close()
-	r := &reader{file: path, opt: Options{MissingTokens: missingTokens}}
+	r := &reader{file: path, opt: Options{MissingTokens: missingTokens, Dialect: d}}
 	r.missing = r.opt.missingSet()
 	if err := r.start(f); err != nil {
 		return nil, err
@@ -74,7 +75,7 @@ func ProfileFile(path string, missingTokens []string) ([]Profile, error) {
 				}
 			}
 			if p.Numeric {
-				v, msg := parseNumber(cell)
+				v, msg := d.number(cell)
 				if msg != "" {
 					p.Numeric, p.Integer = false, false
 					continue
@@ -94,8 +95,8 @@ func ProfileFile(path string, missingTokens []string) ([]Profile, error) {
 		}
 		if p.Numeric {
 			slices.SortFunc(p.Values, func(a, b string) int {
-				x, _ := strconv.ParseFloat(a, 64)
-				y, _ := strconv.ParseFloat(b, 64)
+				x, _ := d.number(a)
+				y, _ := d.number(b)
 				switch {
 				case x < y:
 					return -1
