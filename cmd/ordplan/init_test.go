@@ -158,3 +158,35 @@ func TestInitFollowsDialect(t *testing.T) {
 		}
 	}
 }
+
+// The outcome guess on a small file: a four-value text column whose
+// values are the words of an ordered scale wins over integer codes (here a
+// count of visits), although the file has fewer than two rows per value;
+// integer codes still win over text naming places, and a name that says
+// rating wins among integer codes.
+func TestInitGuessesScaleOutcome(t *testing.T) {
+	dir := t.TempDir()
+	for i, c := range []struct {
+		csv, want string
+	}{
+		{"id,visits,dose,pain\n1,1,0.5,never\n2,3,1.5,sometimes\n3,2,2.5,often\n4,4,0.5,always\n5,1,1.0,sometimes\n6,2,2.0,never\n", "pain"},
+		{"id,visits,dose,relief\n1,1,0.5,not at all\n2,3,1.5,a little\n3,2,2.5,somewhat\n4,4,0.5,very much\n5,1,1.0,a little\n6,2,2.0,somewhat\n", "relief"},
+		{"site,arm,grade\nnorth,1,2\nsouth,2,1\neast,3,3\nnorth,1,2\nsouth,2,1\neast,3,3\nnorth,1,1\n", "grade"},
+	} {
+		d := filepath.Join(dir, "d"+strconv.Itoa(i)+".csv")
+		os.WriteFile(d, []byte(c.csv), 0o644)
+		p := filepath.Join(dir, "p"+strconv.Itoa(i)+".yaml")
+		if _, errs, code := runCLI("init", p, "--data", d); code != 0 {
+			t.Fatalf("init: %s", errs)
+		}
+		pl, err := plan.Load(p)
+		if err != nil {
+			text, _ := os.ReadFile(p)
+			t.Fatalf("not a valid plan: %v\n%s", err, text)
+		}
+		if got := pl.Outcomes[0].Column; got != c.want {
+			text, _ := os.ReadFile(p)
+			t.Errorf("case %d: outcome %q, want %q\n%s", i, got, c.want, text)
+		}
+	}
+}

@@ -5,6 +5,7 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"unicode"
 
 	"ordplan/runner/data"
 	"ordplan/runner/fit"
@@ -53,6 +54,9 @@ func KindOf(p data.Profile, haveData bool) Kind {
 			what = "numeric, whole numbers"
 		}
 		return Kind{Word: "numeric", Describe: fmt.Sprintf("%s from %s to %s%s", what, num(p.Min), num(p.Max), miss)}
+	case !p.Many && p.Distinct <= 12 && p.Distinct >= 3 && scaleLike(p.Values):
+		return Kind{Word: "categorical", Candidate: true,
+			Describe: fmt.Sprintf("text, %d values: %s (the words of an ordered scale?)%s", p.Distinct, strings.Join(p.Values, ", "), miss)}
 	case !p.Many && p.Distinct <= 12:
 		return Kind{Word: "categorical", Candidate: p.Distinct >= 3 && 2*p.Distinct <= p.Rows-p.Missing,
 			Describe: fmt.Sprintf("text, %d values: %s (categorical; ordered?)%s", p.Distinct, strings.Join(p.Values, ", "), miss)}
@@ -86,13 +90,10 @@ func Write(in Input) ([]byte, error) {
 	}
 	if outcome < 0 {
 		guessed = true
-		// Integer codes first, then text with few values.
-		for pass := 0; pass < 2 && outcome < 0; pass++ {
-			for i, k := range kinds {
-				if k.Candidate && (pass == 1 || in.Columns[i].Numeric) {
-					outcome = i
-					break
-				}
+		best := 0
+		for i, c := range in.Columns {
+			if sc := outcomeScore(c, kinds[i]); sc > best {
+				outcome, best = i, sc
 			}
 		}
 		if outcome < 0 && len(in.Columns) > 0 {
@@ -304,4 +305,98 @@ func writeDialect(w func(string, ...any), in Input) {
 		w("  delimiter: %-12s # %s%s", d.DelimiterWord(), strings.Join(data.DelimiterWords, " | "), how)
 		w("  decimal: %-14s # %s: 1.5 or 1,5", d.DecimalWord(), strings.Join(data.DecimalWords, " | "))
 	}
+}
+
+// The guess of the outcome: every candidate column (integer codes with 3
+// to 10 values, or text with 3 to 12 values) gets a score, and the
+// highest wins (the first column among equals):
+//
+//   - text whose values are the words of an ordered scale (all values but
+//     at most one hold a word of scaleWords, such as never/often,
+//     unsafe/safe, poor/good, mild/severe, or a degree such as very,
+//     somewhat, strongly): 4;
+//   - integer codes: 2 (0 when every row has its own value);
+//   - other text with few values (at most half as many values as rows): 1;
+//   - a name that says rating or order (a word beginning rating, score,
+//     grade, level, severity, stage, ...): +1; integer codes under a name
+//     that says count, measure or identifier (count, number, visits, days,
+//     age, year, n, id, ...): -2.
+//
+// So a four-value text scale on a small file beats an integer column, and
+// integer codes beat a text column of places or groups.
+func outcomeScore(c data.Profile, k Kind) int {
+	if !k.Candidate {
+		return 0
+	}
+	name := strings.ToLower(c.Name)
+	score := 1
+	switch {
+	case c.Numeric && c.Distinct == c.Rows-c.Missing:
+		return 0 // every row its own value: an identifier or a measure
+	case c.Numeric:
+		score = 2
+		if hasAny(name, countNames) {
+			score -= 2
+		}
+	case scaleLike(c.Values):
+		score = 4
+	}
+	if hasAny(name, orderNames) {
+		score++
+	}
+	return max(score, 0)
+}
+
+// scaleWords are words of ordered answer scales (frequency, agreement,
+// quality, amount, severity, change, and adjectives with their negation),
+// and words of degree.
+var scaleWords = map[string]bool{}
+
+func init() {
+	for _, w := range strings.Fields(`never rarely seldom sometimes occasionally often frequently usually always
+		disagree agree neutral neither undecided poor fair good excellent bad average
+		none low medium moderate high little some much mild severe worse same better
+		unchanged improved worsened small large safe unsafe likely unlikely satisfied
+		dissatisfied unsatisfied happy unhappy important unimportant comfortable uncomfortable
+		easy difficult hard
+		very extremely somewhat slightly fairly quite not strongly completely totally rather`) {
+		scaleWords[w] = true
+	}
+}
+
+// orderNames and countNames begin words of column names (split at every
+// character that is not a letter) that say rating or order, and count or
+// measure.
+var (
+	orderNames = []string{"rating", "score", "grade", "level", "severity", "satisf", "agree", "stage", "rank", "scale"}
+	countNames = []string{"count", "number", "num", "n", "id", "visit", "times", "day", "age", "year", "size"}
+)
+
+// scaleLike reports whether text values look like the points of an
+// ordered scale: all but at most one (and at least two) hold a scale word.
+func scaleLike(values []string) bool {
+	hits := 0
+	for _, v := range values {
+		for _, w := range strings.FieldsFunc(strings.ToLower(v), func(r rune) bool { return !unicode.IsLetter(r) }) {
+			if scaleWords[w] {
+				hits++
+				break
+			}
+		}
+	}
+	return hits >= 2 && hits >= len(values)-1
+}
+
+// hasAny reports whether a word of the name begins with one of the
+// prefixes (a prefix of one or two letters, such as "n" or "id", must be
+// the whole word).
+func hasAny(name string, prefixes []string) bool {
+	for _, w := range strings.FieldsFunc(name, func(r rune) bool { return !unicode.IsLetter(r) }) {
+		for _, p := range prefixes {
+			if strings.HasPrefix(w, p) && (len(p) > 2 || w == p) {
+				return true
+			}
+		}
+	}
+	return false
 }
