@@ -3,9 +3,11 @@ package main
 import (
 	"bytes"
 	"crypto/sha256"
+	"encoding/csv"
 	"encoding/hex"
 	"os"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -360,4 +362,86 @@ func TestFitSheetFlags(t *testing.T) {
 	if code != 2 || !strings.Contains(stderr, "--header-row must be a sheet row number, 1 or more (got 0)") {
 		t.Errorf("--header-row 0: exit %d: %s", code, stderr)
 	}
+}
+
+// The new rows of inference.predict may be a workbook or a Parquet file,
+// read through the same path as the data: the predictions equal those of
+// the CSV file (and a workbook's rows are read from the data's sheet and
+// header row).
+func TestNewRowsInEveryFormat(t *testing.T) {
+	raw, err := os.ReadFile(filepath.Join("..", "..", "plans", "data", "quietstreets.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	nr, err := os.ReadFile(filepath.Join("..", "..", "plans", "data", "newrows.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var want map[string][]string
+	for i, c := range []struct {
+		name  string
+		data  []byte
+		extra string
+	}{
+		{"new.csv", nr, ""},
+		{"new.xlsx", toWorkbook(t, nr), "  sheet: survey\n  header_row: 3\n"},
+		{"new.parquet", toParquet(t, nr), ""},
+	} {
+		dir := t.TempDir()
+		os.WriteFile(filepath.Join(dir, "d.csv"), raw, 0o644)
+		os.WriteFile(filepath.Join(dir, c.name), c.data, 0o644)
+		p := dialectPlan(t, dir, "d.csv", c.extra)
+		f, _ := os.OpenFile(p, os.O_APPEND|os.O_WRONLY, 0)
+		f.WriteString("inference:\n  predict: " + c.name + "\n")
+		f.Close()
+		out := filepath.Join(dir, "out")
+		if stdout, stderr, code := runCLI("run", p, "--out", out, "--quiet"); code != 0 {
+			t.Fatalf("%s: exit %d: %s %s", c.name, code, stdout, stderr)
+		}
+		got, err := os.ReadFile(filepath.Join(out, "predictions-safety.csv"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		// The same rows and numbers; a workbook's lines are its sheet rows
+		// (4, 5, ... under a header in row 3), a Parquet file's columns
+		// come in its schema's order.
+		byName := columnsByName(t, got)
+		if i == 0 {
+			want = byName
+		} else {
+			for col, cells := range want {
+				if col != "line" && !slices.Equal(byName[col], cells) {
+					t.Errorf("%s: column %s of the predictions is %v, want %v", c.name, col, byName[col], cells)
+				}
+			}
+		}
+		if c.name == "new.xlsx" && byName["line"][0] != "4" {
+			t.Errorf("%s: the first row is on line %s, want the sheet row 4", c.name, byName["line"][0])
+		}
+		if rj, _ := os.ReadFile(filepath.Join(out, "run.json")); !bytes.Contains(rj, []byte(HashHex(c.data))) {
+			t.Errorf("%s: run.json lacks the hash of the new rows as read", c.name)
+		}
+	}
+}
+
+// HashHex is the hex SHA-256 of b.
+func HashHex(b []byte) string {
+	s := sha256.Sum256(b)
+	return hex.EncodeToString(s[:])
+}
+
+// columnsByName reads CSV text into its columns, by header name.
+func columnsByName(t *testing.T, b []byte) map[string][]string {
+	t.Helper()
+	recs, err := csv.NewReader(bytes.NewReader(b)).ReadAll()
+	if err != nil || len(recs) < 2 {
+		t.Fatalf("predictions: %v\n%s", err, b)
+	}
+	out := map[string][]string{}
+	for _, r := range recs[1:] {
+		for j, h := range recs[0] {
+			out[h] = append(out[h], r[j])
+		}
+	}
+	return out
 }

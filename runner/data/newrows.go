@@ -2,8 +2,6 @@ package data
 
 import (
 	"bytes"
-	"encoding/csv"
-	"errors"
 	"io"
 	"slices"
 	"strings"
@@ -27,7 +25,7 @@ type Rows struct {
 	SHA256   string // hex SHA-256 of the file's bytes
 }
 
-// LoadRows reads a CSV file of rows to predict: a header naming at least
+// LoadRows reads a file of rows to predict: a header naming at least
 // the predictors (and the offset column when offset is not ""). Rows with a
 // missing value are skipped and their lines listed; bad values are errors
 // naming the line and column.
@@ -44,32 +42,24 @@ func LoadRowsLevels(path string, predictors []string, levels map[string][]string
 
 // LoadRowsMissing is LoadRowsLevels with columns' own missing-value codes
 // (a data dictionary's), besides missingTokens, and the data file's
-// dialect: the new rows are written like the data (delimiter, decimal mark).
+// dialect: the new rows are written like the data (delimiter, decimal mark;
+// the sheet and header row of a workbook). The file is read through the
+// same header and records path as data files, so it may be CSV text, an
+// .xlsx workbook or a Parquet file.
 func LoadRowsMissing(path string, predictors []string, levels map[string][]string, offset string, missingTokens []string, columnMissing map[string][]string, dialect Dialect) (*Rows, error) {
 	raw, err := ReadFile(path)
 	if err != nil {
 		return nil, err
 	}
 	hash := HashBytes(raw)
-	raw = bytes.TrimPrefix(raw, utf8BOM)
-	opt := Options{MissingTokens: missingTokens}
-	missing := opt.missingSet()
-	if msg := checkUTF8(raw); msg != "" {
-		return nil, &Error{File: path, Msg: msg}
+	r := &reader{file: path, opt: Options{MissingTokens: missingTokens, Dialect: dialect}}
+	missing := r.opt.missingSet()
+	if err := r.start(bytes.NewReader(raw)); err != nil {
+		return nil, err
 	}
-	cr := csv.NewReader(bytes.NewReader(raw))
-	cr.Comma = dialect.delim()
-	head, err := cr.Read()
-	if err == io.EOF {
-		return nil, &Error{File: path, Msg: "the file is empty"}
-	}
+	head, index, err := r.names()
 	if err != nil {
-		return nil, &Error{File: path, Line: 1, Msg: "cannot read the header: " + err.Error(), Err: err}
-	}
-	index := map[string]int{}
-	for i, h := range head {
-		head[i] = strings.TrimSpace(h)
-		index[head[i]] = i
+		return nil, err
 	}
 	cols := append([]string(nil), predictors...)
 	if offset != "" {
@@ -83,6 +73,7 @@ func LoadRowsMissing(path string, predictors []string, levels map[string][]strin
 		}
 		pos[j] = i
 	}
+	cr := r.cr
 	K := len(predictors)
 	rs := &Rows{File: path, Predictors: predictors, SHA256: hash, Header: head}
 	for {
@@ -91,11 +82,7 @@ func LoadRowsMissing(path string, predictors []string, levels map[string][]strin
 			break
 		}
 		if err != nil {
-			var pe *csv.ParseError
-			if errors.As(err, &pe) {
-				return nil, &Error{File: path, Line: pe.StartLine, Msg: "row has a different number of fields than the header, or bad quoting: " + pe.Err.Error(), Err: err}
-			}
-			return nil, &Error{File: path, Msg: err.Error(), Err: err}
+			return nil, r.csvErr(err, rec)
 		}
 		rs.RowsRead++
 		line, _ := cr.FieldPos(0)
