@@ -97,11 +97,11 @@ func (p *problem) hessian(theta []float64, a *acc, curvature bool) []float64 {
 				v = a.T[di.col*kp+dj.col]
 			case di.parallel:
 				for _, e := range dj.c {
-					v -= e.v * a.R[e.m][di.col*kf+dj.col]
+					v -= e.v * a.R[di.col*q*kf+e.m*kf+dj.col]
 				}
 			case dj.parallel:
 				for _, e := range di.c {
-					v -= e.v * a.R[e.m][dj.col*kf+di.col]
+					v -= e.v * a.R[dj.col*q*kf+e.m*kf+di.col]
 				}
 			default:
 				for _, ei := range di.c {

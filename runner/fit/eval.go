@@ -5,9 +5,6 @@ import (
 	"runtime"
 	"sync"
 	"time"
-
-	"gonum.org/v1/gonum/blas"
-	"gonum.org/v1/gonum/blas/blas64"
 )
 
 // blockRows is the number of rows of one block of work. Blocks are summed in
@@ -97,7 +94,7 @@ type acc struct {
 	V     []float64   // q x Kf: sum w g_m u_a
 	Vp    []float64   // Kp: sum w (sum_m g_m) x_a
 	S     [][]float64 // per pair: Kf x Kf
-	R     [][]float64 // per equation l: Kp x Kf, weight sum_m H_ml
+	R     []float64   // Kp x (q Kf): column l Kf + b weighted by sum_m H_ml
 	T     []float64   // Kp x Kp, weight sum_ml H_ml
 	order int
 }
@@ -115,10 +112,7 @@ func (p *problem) newAcc(order int) *acc {
 			a.S[i] = make([]float64, kf*kf)
 		}
 		if kp > 0 {
-			a.R = make([][]float64, p.q)
-			for i := range a.R {
-				a.R[i] = make([]float64, kp*kf)
-			}
+			a.R = make([]float64, kp*p.q*kf)
 			a.T = make([]float64, kp*kp)
 		}
 	}
@@ -133,9 +127,7 @@ func (a *acc) add(b *acc) {
 	for i := range a.S {
 		addTo(a.S[i], b.S[i])
 	}
-	for i := range a.R {
-		addTo(a.R[i], b.R[i])
-	}
+	addTo(a.R, b.R)
 	addTo(a.T, b.T)
 }
 
@@ -233,26 +225,44 @@ func (p *problem) evaluate(theta []float64, order int, expected bool) *acc {
 	for _, a := range parts[1:] {
 		total.add(a)
 	}
+	if order >= 2 {
+		for _, S := range total.S {
+			mirrorLower(S, len(p.freeCols))
+		}
+		mirrorLower(total.T, len(p.parCols))
+	}
 	return total
 }
 
-// scratch is per-worker memory for one block.
+// scratch is per-worker memory for one block. The block's columns, linear
+// predictors, first derivatives and weight vectors are column-major (one
+// contiguous run of rows per column); hb holds each row's (J-1)x(J-1)
+// second derivatives.
 type scratch struct {
-	uf, xp, tmp, tmp2 []float64
-	L, g, h, hb, p    []float64
-	eta               []float64
+	uf, xp  []float64 // Kf x rows, Kp x rows
+	eta, gs []float64 // q x rows: x'b + offset per equation; weighted dlogP/dL
+	hb      []float64 // rows x q x q
+	wt      []float64 // rows: the weights of one cross-product
+	rl, ru  []float64 // q x rows: sum_m H_ml per equation l; Kf q x rows: those times the per-equation columns
+	L, g, h []float64
+	p       []float64
 }
 
 func (p *problem) newScratch() *scratch {
 	kf, kp, q := len(p.freeCols), len(p.parCols), p.q
 	rows := min(blockRows, max(p.d.n, 1))
-	return &scratch{
+	s := &scratch{
 		uf: make([]float64, rows*kf), xp: make([]float64, rows*kp),
-		tmp: make([]float64, rows*max(kf, kp)), tmp2: make([]float64, rows*q),
+		eta: make([]float64, rows*q), gs: make([]float64, rows*q),
+		hb: make([]float64, rows*q*q), wt: make([]float64, rows),
 		L: make([]float64, q), g: make([]float64, q), h: make([]float64, q*q),
-		hb: make([]float64, rows*q*q), p: make([]float64, q+1),
-		eta: make([]float64, rows*q),
+		p: make([]float64, q+1),
 	}
+	if kp > 0 {
+		s.rl = make([]float64, rows*q)
+		s.ru = make([]float64, rows*q*kf)
+	}
+	return s
 }
 
 // block adds the sums of rows lo..hi-1 to a, in phases: the block's
@@ -283,49 +293,55 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 	p.blockInformation(rows, a, s)
 }
 
-// blockColumns fills s.uf with the per-equation columns (rows x Kf) and
-// s.xp with the parallel columns (rows x Kp) of the block.
+// blockColumns fills s.uf with the per-equation columns (Kf x rows) and
+// s.xp with the parallel columns (Kp x rows) of the block.
 func (p *problem) blockColumns(c *coefs, lo, rows int, s *scratch) {
 	d := p.d
-	kf, kp := len(p.freeCols), len(p.parCols)
 	for i := 0; i < rows; i++ {
 		xi := d.x[(lo+i)*d.K : (lo+i+1)*d.K]
-		u := s.uf[i*kf : (i+1)*kf]
 		for j, col := range p.freeCols {
-			u[j] = col.value(xi, p.ly.groups, c.gam)
+			s.uf[j*rows+i] = col.value(xi, p.ly.groups, c.gam)
 		}
-		xr := s.xp[i*kp : (i+1)*kp]
 		for j, k := range p.parCols {
-			xr[j] = xi[k]
+			s.xp[j*rows+i] = xi[k]
 		}
 	}
 }
 
-// blockLinear fills s.eta (rows x q) with Uf Bf + (Xp bp + offset) 1'.
+// blockLinear fills s.eta (q x rows) with Uf Bf + (Xp bp + offset) 1'.
 func (p *problem) blockLinear(c *coefs, lo, rows int, s *scratch) {
 	q := p.q
-	kf, kp := len(p.freeCols), len(p.parCols)
-	uf := blas64.General{Rows: rows, Cols: kf, Stride: kf, Data: s.uf[:rows*kf]}
-	eta := blas64.General{Rows: rows, Cols: q, Stride: q, Data: s.eta[:rows*q]}
-	blas64.Gemm(blas.NoTrans, blas.NoTrans, 1, uf, blas64.General{Rows: kf, Cols: q, Stride: q, Data: c.bf}, 0, eta)
-	for i := 0; i < rows; i++ {
-		e := 0.0
-		xr := s.xp[i*kp : (i+1)*kp]
-		for j := range xr {
-			e += xr[j] * c.bp[j]
+	e := s.wt[:rows]
+	if p.d.off != nil {
+		copy(e, p.d.off[lo:lo+rows])
+	} else {
+		clear(e)
+	}
+	for j, b := range c.bp {
+		axpy(e, b, s.xp[j*rows:(j+1)*rows])
+	}
+	for m := 0; m < q; m++ {
+		em := s.eta[m*rows : (m+1)*rows]
+		copy(em, e)
+		for a := range p.freeCols {
+			if b := c.bf[a*q+m]; b != 0 {
+				axpy(em, b, s.uf[a*rows:(a+1)*rows])
+			}
 		}
-		if p.d.off != nil {
-			e += p.d.off[lo+i]
-		}
-		for m := 0; m < q; m++ {
-			s.eta[i*q+m] += e
-		}
+	}
+}
+
+// axpy adds b x to y.
+func axpy(y []float64, b float64, x []float64) {
+	x = x[:len(y)]
+	for i := range y {
+		y[i] += b * x[i]
 	}
 }
 
 // blockKernels evaluates the row kernel of every row: it adds the weighted
-// log-probabilities to a.ll, and keeps in s.tmp2 the weighted first
-// derivatives in L (rows x q, order >= 1) and in s.hb the weighted second
+// log-probabilities to a.ll, and keeps in s.gs the weighted first
+// derivatives in L (q x rows, order >= 1) and in s.hb the weighted second
 // derivatives (rows x q x q, order >= 2; expected ones when asked). It
 // reports false when a row's observed category has a non-positive
 // probability.
@@ -338,20 +354,18 @@ func (p *problem) blockKernels(c *coefs, lo, rows, order int, expected bool, a *
 	if order >= 2 && !expected {
 		h = s.h
 	}
-	gs := s.tmp2[:rows*q]
+	gs := s.gs
 	for i := 0; i < rows; i++ {
 		r := lo + i
 		w := d.weight(r)
 		for m := 0; m < q; m++ {
-			s.L[m] = c.tau[m] - s.eta[i*q+m]
+			s.L[m] = c.tau[m] - s.eta[m*rows+i]
 		}
 		if w == 0 {
 			for m := 0; m < q; m++ {
-				gs[i*q+m] = 0
+				gs[m*rows+i] = 0
 			}
-			for t := range s.hb[i*q*q : (i+1)*q*q] {
-				s.hb[i*q*q+t] = 0
-			}
+			clear(s.hb[i*q*q : (i+1)*q*q])
 			continue
 		}
 		lp, ok := p.ker.eval(s.L, d.y[r], g, h)
@@ -361,7 +375,7 @@ func (p *problem) blockKernels(c *coefs, lo, rows, order int, expected bool, a *
 		a.ll += w * lp
 		if order >= 1 {
 			for m := 0; m < q; m++ {
-				gs[i*q+m] = w * g[m]
+				gs[m*rows+i] = w * g[m]
 			}
 		}
 		if order >= 2 {
@@ -386,81 +400,62 @@ func (p *problem) blockKernels(c *coefs, lo, rows, order int, expected bool, a *
 func (p *problem) blockScore(rows int, a *acc, s *scratch) {
 	q := p.q
 	kf, kp := len(p.freeCols), len(p.parCols)
-	uf := blas64.General{Rows: rows, Cols: kf, Stride: kf, Data: s.uf[:rows*kf]}
-	gs := s.tmp2[:rows*q]
-	G := blas64.General{Rows: rows, Cols: q, Stride: q, Data: gs}
-	blas64.Gemm(blas.Trans, blas.NoTrans, 1, G, uf, 1, blas64.General{Rows: q, Cols: kf, Stride: kf, Data: a.V})
-	for i := 0; i < rows; i++ {
-		sg := 0.0
-		for m := 0; m < q; m++ {
-			sg += gs[i*q+m]
-		}
-		xr := s.xp[i*kp : (i+1)*kp]
-		for j := range xr {
-			a.Vp[j] += sg * xr[j]
-		}
+	fullCross(a.V, kf, s.gs, q, s.uf, kf, rows, nil)
+	if kp == 0 {
+		return
 	}
+	sg := s.wt[:rows]
+	copy(sg, s.gs[:rows])
+	for m := 1; m < q; m++ {
+		addTo(sg, s.gs[m*rows:(m+1)*rows])
+	}
+	fullCross(a.Vp, kp, sg, 1, s.xp, kp, rows, nil)
 }
 
-// blockInformation adds the information pieces: per-equation x
-// per-equation blocks for each pair of equations the comparison needs,
-// parallel x per-equation blocks weighted by sum_m H_ml, and the parallel x
-// parallel block weighted by sum_ml H_ml.
+// blockInformation adds the information pieces, lower triangles of the
+// symmetric ones: per-equation x per-equation blocks for each pair of
+// equations the comparison needs (weights H_ml), the parallel x
+// per-equation blocks of every equation l (weights sum_m H_ml, all l in one
+// product), and the parallel x parallel block (weights sum_ml H_ml): the
+// parallel columns enter one weighted cross-product, whatever the number
+// of equations.
 func (p *problem) blockInformation(rows int, a *acc, s *scratch) {
-	q := p.q
+	q, qq := p.q, p.q*p.q
 	kf, kp := len(p.freeCols), len(p.parCols)
-	uf := blas64.General{Rows: rows, Cols: kf, Stride: kf, Data: s.uf[:rows*kf]}
-	xp := blas64.General{Rows: rows, Cols: kp, Stride: max(kp, 1), Data: s.xp[:rows*kp]}
-	tmp := s.tmp
+	wt := s.wt[:rows]
 	for pi, pr := range p.pairs {
-		m, l := pr[0], pr[1]
-		for i := 0; i < rows; i++ {
-			wt := s.hb[i*q*q+m*q+l]
-			u := s.uf[i*kf : (i+1)*kf]
-			t := tmp[i*kf : (i+1)*kf]
-			for j := range u {
-				t[j] = wt * u[j]
-			}
+		ml := pr[0]*q + pr[1]
+		for i := range wt {
+			wt[i] = s.hb[i*qq+ml]
 		}
-		weightedCross(a.S[pi], uf, blas64.General{Rows: rows, Cols: kf, Stride: kf, Data: tmp[:rows*kf]})
+		symCross(a.S[pi], kf, s.uf, kf, rows, wt)
 	}
 	if kp == 0 {
 		return
 	}
-	for l := 0; l < q; l++ {
-		for i := 0; i < rows; i++ {
-			hb := s.hb[i*q*q : (i+1)*q*q]
-			wt := 0.0
+	for i := range wt {
+		hb := s.hb[i*qq : (i+1)*qq]
+		t := 0.0
+		for l := 0; l < q; l++ {
+			r := 0.0
 			for m := 0; m < q; m++ {
-				wt += hb[m*q+l]
+				r += hb[m*q+l]
 			}
-			u := s.uf[i*kf : (i+1)*kf]
-			t := tmp[i*kf : (i+1)*kf]
-			for j := range u {
-				t[j] = wt * u[j]
+			s.rl[l*rows+i] = r
+			t += r
+		}
+		wt[i] = t
+	}
+	for l := 0; l < q; l++ {
+		rl := s.rl[l*rows : (l+1)*rows]
+		for j := 0; j < kf; j++ {
+			ru := s.ru[(l*kf+j)*rows : (l*kf+j+1)*rows]
+			u := s.uf[j*rows : (j+1)*rows]
+			for i := range ru {
+				ru[i] = rl[i] * u[i]
 			}
 		}
-		weightedCross(a.R[l], xp, blas64.General{Rows: rows, Cols: kf, Stride: kf, Data: tmp[:rows*kf]})
 	}
-	for i := 0; i < rows; i++ {
-		hb := s.hb[i*q*q : (i+1)*q*q]
-		wt := 0.0
-		for _, v := range hb {
-			wt += v
-		}
-		xr := s.xp[i*kp : (i+1)*kp]
-		t := tmp[i*kp : (i+1)*kp]
-		for j := range xr {
-			t[j] = wt * xr[j]
-		}
-	}
-	weightedCross(a.T, xp, blas64.General{Rows: rows, Cols: kp, Stride: kp, Data: tmp[:rows*kp]})
-}
-
-// weightedCross adds A' B to dst (A.Cols x B.Cols, row-major).
-func weightedCross(dst []float64, A, B blas64.General) {
-	if A.Rows == 0 || A.Cols == 0 || B.Cols == 0 {
-		return
-	}
-	blas64.Gemm(blas.Trans, blas.NoTrans, 1, A, B, 1, blas64.General{Rows: A.Cols, Cols: B.Cols, Stride: B.Cols, Data: dst})
+	fullCross(a.R, q*kf, s.xp, kp, s.ru, q*kf, rows, nil)
+	symCross(a.T, kp, s.xp, kp, rows, wt)
 }

@@ -1,0 +1,133 @@
+package fit
+
+import (
+	"math"
+	"math/rand/v2"
+	"testing"
+
+	"gonum.org/v1/gonum/blas"
+	"gonum.org/v1/gonum/blas/blas64"
+)
+
+// TestCrossProducts checks the tiled cross-products against plain sums
+// over rows, for odd and even numbers of columns, blocks shorter and longer
+// than a panel, and with and without weights.
+func TestCrossProducts(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 4))
+	for _, n := range []int{1, 3, 7, crossPanel, crossPanel + 5, 3*crossPanel + 1} {
+		for _, ka := range []int{1, 2, 3, 4, 5, 6, 7, 9, 11} {
+			for _, kb := range []int{1, 3, 4, 5, 8} {
+				A := randCols(rng, ka, n)
+				B := randCols(rng, kb, n)
+				w := randCols(rng, 1, n)
+				for _, wv := range [][]float64{nil, w} {
+					weight := func(i int) float64 {
+						if wv == nil {
+							return 1
+						}
+						return wv[i]
+					}
+					sym := make([]float64, ka*ka)
+					symCross(sym, ka, A, ka, n, wv)
+					full := make([]float64, ka*kb)
+					fullCross(full, kb, A, ka, B, kb, n, wv)
+					for a := 0; a < ka; a++ {
+						for b := 0; b < ka; b++ {
+							want := 0.0
+							for i := 0; i < n; i++ {
+								want += weight(i) * A[a*n+i] * A[b*n+i]
+							}
+							got := sym[a*ka+b]
+							if b > a {
+								want = 0 // the upper triangle is left alone
+							}
+							if math.Abs(got-want) > 1e-12*(1+math.Abs(want)) {
+								t.Fatalf("symCross n=%d k=%d (%d,%d): %g, want %g", n, ka, a, b, got, want)
+							}
+						}
+						for b := 0; b < kb; b++ {
+							want := 0.0
+							for i := 0; i < n; i++ {
+								want += weight(i) * A[a*n+i] * B[b*n+i]
+							}
+							if got := full[a*kb+b]; math.Abs(got-want) > 1e-12*(1+math.Abs(want)) {
+								t.Fatalf("fullCross n=%d %dx%d (%d,%d): %g, want %g", n, ka, kb, a, b, got, want)
+							}
+						}
+					}
+					mirrorLower(sym, ka)
+					for a := 0; a < ka; a++ {
+						for b := 0; b < a; b++ {
+							if sym[b*ka+a] != sym[a*ka+b] {
+								t.Fatalf("mirrorLower: (%d,%d)", b, a)
+							}
+						}
+					}
+				}
+			}
+		}
+	}
+}
+
+func randCols(rng *rand.Rand, k, n int) []float64 {
+	u := make([]float64, k*n)
+	for i := range u {
+		u[i] = rng.NormFloat64()
+	}
+	return u
+}
+
+// BenchmarkCross compares the weighted cross-product of n = 4096 rows
+// (one block) of K columns with gonum's pure-Go BLAS on the same sums:
+// Dsyrk on the rows scaled by sqrt(w) (row-major, as a GLM would hold
+// them) and Dgemm of X' and WX (what the engine used before).
+func BenchmarkCross(b *testing.B) {
+	const n = blockRows
+	for _, K := range []int{11, 45, 101} {
+		rng := rand.New(rand.NewPCG(5, uint64(K)))
+		cols := randCols(rng, K, n)
+		w := randCols(rng, 1, n)
+		for i := range w {
+			w[i] = math.Abs(w[i])
+		}
+		rowsX := make([]float64, n*K)  // sqrt(w) x, row-major
+		rowsWX := make([]float64, n*K) // w x, row-major
+		plain := make([]float64, n*K)  // x, row-major
+		for i := 0; i < n; i++ {
+			for j := 0; j < K; j++ {
+				plain[i*K+j] = cols[j*n+i]
+				rowsX[i*K+j] = math.Sqrt(w[i]) * cols[j*n+i]
+				rowsWX[i*K+j] = w[i] * cols[j*n+i]
+			}
+		}
+		dst := make([]float64, K*K)
+		b.Run("symCross/K="+itoa(K), func(b *testing.B) {
+			for i := 0; i < b.N; i++ {
+				symCross(dst, K, cols, K, n, w)
+			}
+		})
+		b.Run("gonum-Dsyrk/K="+itoa(K), func(b *testing.B) {
+			C := blas64.Symmetric{N: K, Stride: K, Data: dst, Uplo: blas.Lower}
+			A := blas64.General{Rows: n, Cols: K, Stride: K, Data: rowsX}
+			for i := 0; i < b.N; i++ {
+				blas64.Syrk(blas.Trans, 1, A, 1, C)
+			}
+		})
+		b.Run("gonum-Dgemm/K="+itoa(K), func(b *testing.B) {
+			C := blas64.General{Rows: K, Cols: K, Stride: K, Data: dst}
+			X := blas64.General{Rows: n, Cols: K, Stride: K, Data: plain}
+			WX := blas64.General{Rows: n, Cols: K, Stride: K, Data: rowsWX}
+			for i := 0; i < b.N; i++ {
+				blas64.Gemm(blas.Trans, blas.NoTrans, 1, X, WX, 1, C)
+			}
+		})
+	}
+}
+
+func itoa(k int) string {
+	s := ""
+	for ; k > 0; k /= 10 {
+		s = string(rune('0'+k%10)) + s
+	}
+	return s
+}
