@@ -308,26 +308,27 @@ func (p *problem) blockColumns(c *coefs, lo, rows int, s *scratch) {
 	}
 }
 
-// blockLinear fills s.eta (q x rows) with Uf Bf + (Xp bp + offset) 1'.
+// blockLinear fills s.eta (q x rows) with Uf Bf + (Xp bp + offset) 1', each
+// sum in the order of its terms.
 func (p *problem) blockLinear(c *coefs, lo, rows int, s *scratch) {
 	q := p.q
 	e := s.wt[:rows]
-	if p.d.off != nil {
-		copy(e, p.d.off[lo:lo+rows])
-	} else {
-		clear(e)
-	}
+	clear(e)
 	for j, b := range c.bp {
 		axpy(e, b, s.xp[j*rows:(j+1)*rows])
 	}
+	if p.d.off != nil {
+		addTo(e, p.d.off[lo:lo+rows])
+	}
 	for m := 0; m < q; m++ {
 		em := s.eta[m*rows : (m+1)*rows]
-		copy(em, e)
+		clear(em)
 		for a := range p.freeCols {
 			if b := c.bf[a*q+m]; b != 0 {
 				axpy(em, b, s.uf[a*rows:(a+1)*rows])
 			}
 		}
+		addTo(em, e)
 	}
 }
 
@@ -396,11 +397,18 @@ func (p *problem) blockKernels(c *coefs, lo, rows, order int, expected bool, a *
 }
 
 // blockScore adds the score pieces: V (q x Kf) += G' Uf and Vp += Xp' (G 1),
-// G the weighted first derivatives of the rows.
+// G the weighted first derivatives of the rows. Each sum runs over the rows
+// in order (a few products per row: the score's rounding, which the
+// reported max |score| shows, stays that of a plain loop).
 func (p *problem) blockScore(rows int, a *acc, s *scratch) {
 	q := p.q
 	kf, kp := len(p.freeCols), len(p.parCols)
-	fullCross(a.V, kf, s.gs, q, s.uf, kf, rows, nil)
+	for m := 0; m < q; m++ {
+		g := s.gs[m*rows : (m+1)*rows]
+		for j := 0; j < kf; j++ {
+			a.V[m*kf+j] = sumProducts(a.V[m*kf+j], g, s.uf[j*rows:(j+1)*rows])
+		}
+	}
 	if kp == 0 {
 		return
 	}
@@ -409,7 +417,20 @@ func (p *problem) blockScore(rows int, a *acc, s *scratch) {
 	for m := 1; m < q; m++ {
 		addTo(sg, s.gs[m*rows:(m+1)*rows])
 	}
-	fullCross(a.Vp, kp, sg, 1, s.xp, kp, rows, nil)
+	for j := 0; j < kp; j++ {
+		a.Vp[j] = sumProducts(a.Vp[j], sg, s.xp[j*rows:(j+1)*rows])
+	}
+}
+
+// sumProducts returns s + sum_i g_i u_i, summed in order, skipping g_i = 0.
+func sumProducts(s float64, g, u []float64) float64 {
+	u = u[:len(g)]
+	for i, v := range g {
+		if v != 0 {
+			s += v * u[i]
+		}
+	}
+	return s
 }
 
 // blockInformation adds the information pieces, lower triangles of the
@@ -435,14 +456,16 @@ func (p *problem) blockInformation(rows int, a *acc, s *scratch) {
 	}
 	for i := range wt {
 		hb := s.hb[i*qq : (i+1)*qq]
-		t := 0.0
 		for l := 0; l < q; l++ {
 			r := 0.0
 			for m := 0; m < q; m++ {
 				r += hb[m*q+l]
 			}
 			s.rl[l*rows+i] = r
-			t += r
+		}
+		t := 0.0
+		for _, v := range hb {
+			t += v
 		}
 		wt[i] = t
 	}
