@@ -20,7 +20,18 @@ import (
 func main() {
 	out := flag.String("out", "", "write the Markdown report here (default: stdout)")
 	smoke := flag.Bool("smoke", false, "small sizes only (CI smoke test)")
+	only := flag.String("only", "", "run one part only: ingest (reading data files)")
+	ingestRows := flag.Int("ingest-rows", 1_000_000, "rows of the files the ingest part reads")
+	ingestRepeats := flag.Int("ingest-repeats", 5, "readings of each file by each reader")
+	child := flag.String("ingest-child", "", "(internal) read this file once and print what was measured")
+	childMode := flag.String("ingest-mode", "load", "(internal) the reader of -ingest-child: load or stream")
+	childDelim := flag.String("ingest-delim", "", "(internal) the delimiter of -ingest-child")
+	childComma := flag.Bool("ingest-decimal-comma", false, "(internal) -ingest-child has a decimal comma")
 	flag.Parse()
+	if *child != "" {
+		ingestChild(*child, *childMode, *childDelim, *childComma, 10)
+		return
+	}
 	w := io.Writer(os.Stdout)
 	if *out != "" {
 		f, err := os.Create(*out)
@@ -31,9 +42,13 @@ func main() {
 		defer f.Close()
 		w = f
 	}
-	cfg := config{sizes: []int{1e4, 1e5, 1e6, 1e7}, gridN: 1e6, wideN: 1e5, bigModels: 2}
+	cfg := config{sizes: []int{1e4, 1e5, 1e6, 1e7}, gridN: 1e6, wideN: 1e5, bigModels: 2, ingestN: *ingestRows, ingestRepeats: *ingestRepeats}
 	if *smoke {
-		cfg = config{sizes: []int{2e3, 1e4}, gridN: 1e4, wideN: 2e4, bigModels: 12}
+		cfg = config{sizes: []int{2e3, 1e4}, gridN: 1e4, wideN: 2e4, bigModels: 12, ingestN: 1e4, ingestRepeats: 1}
+	}
+	if *only == "ingest" {
+		ingest(w, cfg.ingestN, cfg.ingestRepeats)
+		return
 	}
 	run(w, cfg)
 }
@@ -43,6 +58,9 @@ type config struct {
 	gridN     int
 	wideN     int
 	bigModels int // at the largest size, fit only the first bigModels cells
+	// ingestN rows are written as CSV and Parquet and read ingestRepeats
+	// times by each reader.
+	ingestN, ingestRepeats int
 }
 
 // generate draws n rows with K predictors (half 0/1, half standard normal)
@@ -196,6 +214,7 @@ func run(w io.Writer, cfg config) {
 	}
 	grid(w, cfg.gridN, K, J)
 	wide(w, cfg.wideN, J)
+	ingest(w, cfg.ingestN, cfg.ingestRepeats)
 }
 
 func slope(x, y []float64) float64 {

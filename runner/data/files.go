@@ -107,6 +107,34 @@ func ReadFile(path string) ([]byte, error) {
 	return raw, nil
 }
 
+// fileBytes returns the bytes of a data file, the pinned ones or the whole
+// file as read now, with the errors of openData; unlike ReadFile it does
+// not check the bytes (the reader checks the first ones).
+func fileBytes(path string) ([]byte, error) {
+	pins.Lock()
+	p, ok := pins.m[pinKey(path)]
+	pins.Unlock()
+	if ok {
+		return p.raw, nil
+	}
+	f, err := openData(path)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	var size int64
+	if st, ok := f.(interface{ Stat() (fs.FileInfo, error) }); ok {
+		if fi, err := st.Stat(); err == nil {
+			size = fi.Size()
+		}
+	}
+	buf := bytes.NewBuffer(make([]byte, 0, size+bytes.MinRead))
+	if _, err := buf.ReadFrom(f); err != nil {
+		return nil, &Error{File: path, Msg: "cannot read file: " + osReason(err), Err: err}
+	}
+	return buf.Bytes(), nil
+}
+
 // openData opens a data file for reading (see ReadFile).
 func openData(path string) (io.ReadCloser, error) {
 	pins.Lock()

@@ -9,18 +9,18 @@ import (
 	"io"
 	"io/fs"
 	"strings"
+	"unicode"
 )
 
 var utf8BOM = []byte{0xEF, 0xBB, 0xBF}
 
-// Load reads the CSV file at path. See Read.
+// Load reads the data file at path. See Read.
 func Load(path string, opt Options) (*Dataset, error) {
-	f, err := openData(path)
+	raw, err := fileBytes(path)
 	if err != nil {
 		return nil, err
 	}
-	defer f.Close()
-	return Read(f, path, opt)
+	return readBytes(raw, path, opt)
 }
 
 func osReason(err error) string {
@@ -33,17 +33,58 @@ func osReason(err error) string {
 
 // Read reads a comma-separated file with a header line from r and builds
 // the data set the options ask for. The name is used in messages. A UTF-8
-// byte order mark and CRLF line endings are accepted.
+// byte order mark and CRLF line endings are accepted. The input is read
+// whole, then parsed in chunks on every core (see chunks.go).
 func Read(r io.Reader, name string, opt Options) (*Dataset, error) {
 	if name == "" {
 		name = "<input>"
 	}
-	rd := &reader{file: name, opt: opt, missing: opt.missingSet()}
-	d, err := rd.read(r)
+	raw, err := io.ReadAll(r)
 	if err != nil {
+		return nil, &Error{File: name, Msg: "cannot read file: " + osReason(err), Err: err}
+	}
+	return readBytes(raw, name, opt)
+}
+
+// ReadStream is Read one record at a time, without holding the whole
+// input: the reader Read falls back to when a quoted field spans lines.
+// It gives the same data set and the same errors as Read.
+func ReadStream(r io.Reader, name string, opt Options) (*Dataset, error) {
+	if name == "" {
+		name = "<input>"
+	}
+	rd := &reader{file: name, opt: opt, missing: opt.missingSet()}
+	return rd.read(r)
+}
+
+// readBytes reads a whole file: the header, then the rows in parallel
+// chunks when the file is CSV text whose quoted fields (if any) stay
+// within their lines, else record by record.
+func readBytes(raw []byte, name string, opt Options) (*Dataset, error) {
+	if name == "" {
+		name = "<input>"
+	}
+	r := &reader{file: name, opt: opt, missing: opt.missingSet()}
+	cols, err := r.opt.plan()
+	if err != nil {
+		return nil, &Error{File: r.file, Msg: err.Error()}
+	}
+	if err := r.start(bytes.NewReader(raw)); err != nil {
 		return nil, err
 	}
-	return d, nil
+	if err := r.header(cols); err != nil {
+		return nil, err
+	}
+	if cr, ok := r.cr.(*csv.Reader); ok {
+		body := int(cr.InputOffset())
+		if bytes.HasPrefix(raw, utf8BOM) {
+			body += len(utf8BOM)
+		}
+		if d, done, err := r.chunked(raw, body); done {
+			return d, err
+		}
+	}
+	return r.rows()
 }
 
 // reader holds the state of one Read.
@@ -170,6 +211,15 @@ func readHeader(in io.Reader, name string, d Dialect) ([]string, error) {
 	return names, err
 }
 
+// trimsLeadingSpace says whether the CSV reader skips white space at the
+// start of fields (so that a quote after a space still opens a quoted
+// field): not when the delimiter is itself white space, such as a tab,
+// which the skipping would swallow, merging an empty cell into the next.
+// Cells are trimmed at both ends where they are read anyway.
+func trimsLeadingSpace(delim rune) bool {
+	return !unicode.IsSpace(delim)
+}
+
 // start sets up the CSV reader, skipping a UTF-8 byte order mark. A
 // compressed, UTF-16, binary or CR-only file is refused, named as such.
 func (r *reader) start(in io.Reader) error {
@@ -211,7 +261,7 @@ func (r *reader) start(in io.Reader) error {
 	cr := csv.NewReader(br)
 	cr.Comma = r.opt.Dialect.delim()
 	cr.FieldsPerRecord = 0 // the header sets the width
-	cr.TrimLeadingSpace = true
+	cr.TrimLeadingSpace = trimsLeadingSpace(cr.Comma)
 	r.cr = cr
 	return nil
 }

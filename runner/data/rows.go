@@ -13,16 +13,7 @@ import (
 // one), then the counts of dropped rows, and last the outcome's
 // categories and their counts.
 func (r *reader) rows() (*Dataset, error) {
-	opt := &r.opt
-	d := &Dataset{
-		File:       r.file,
-		Outcome:    opt.Outcome,
-		Predictors: slices.Clone(opt.Predictors),
-		K:          len(opt.Predictors),
-	}
-	if d.Predictors == nil {
-		d.Predictors = []string{}
-	}
+	d := r.newDataset()
 	t := r.newRowTally(d.K)
 	for {
 		rec, err := r.cr.Read()
@@ -33,25 +24,60 @@ func (r *reader) rows() (*Dataset, error) {
 			return nil, r.csvErr(err, rec)
 		}
 		d.RowsRead++
-		if out, err := r.outsideSubset(t, rec); err != nil {
+		if err := r.record(t, d, rec); err != nil {
 			return nil, err
-		} else if out >= 0 {
-			t.subsetDrops[out]++
-			continue
-		}
-		row, err := r.parseRow(t, rec)
-		if err != nil {
-			return nil, err
-		}
-		switch {
-		case row.miss >= 0:
-			t.countIncomplete(row)
-		case row.w == 0:
-			t.zeroWeight++
-		default:
-			r.keepRow(t, d, row)
 		}
 	}
+	return r.finish(t, d)
+}
+
+// newDataset is the data set before any row is read.
+func (r *reader) newDataset() *Dataset {
+	d := &Dataset{
+		File:       r.file,
+		Outcome:    r.opt.Outcome,
+		Predictors: slices.Clone(r.opt.Predictors),
+		K:          len(r.opt.Predictors),
+	}
+	if d.Predictors == nil {
+		d.Predictors = []string{}
+	}
+	return d
+}
+
+// record takes one data record (already counted in d.RowsRead): the
+// subset conditions, the cells, then the row is kept or counted.
+func (r *reader) record(t *rowTally, d *Dataset, rec []string) error {
+	if out, err := r.outsideSubset(t, rec); err != nil {
+		return err
+	} else if out >= 0 {
+		t.subsetDrops[out]++
+		return nil
+	}
+	row, err := r.parseRow(t, rec)
+	if err != nil {
+		return err
+	}
+	r.settle(t, d, row)
+	return nil
+}
+
+// settle keeps a parsed row, or counts it as incomplete or of zero weight.
+func (r *reader) settle(t *rowTally, d *Dataset, row cells) {
+	switch {
+	case row.miss >= 0:
+		t.countIncomplete(row)
+	case row.w == 0:
+		t.zeroWeight++
+	default:
+		r.keepRow(t, d, row)
+	}
+}
+
+// finish counts the dropped rows, and sets the outcome's categories and
+// their counts, once every row is read.
+func (r *reader) finish(t *rowTally, d *Dataset) (*Dataset, error) {
+	opt := &r.opt
 	if err := r.countDrops(t, d); err != nil {
 		return nil, err
 	}
@@ -86,6 +112,7 @@ type rowTally struct {
 	catIncomplete map[string]int            // per outcome value: incomplete rows
 	pat           []byte                    // the current row's pattern
 	xs            []float64                 // the current row's predictor values
+	clusters      map[string]string         // one copy of each cluster id kept
 }
 
 // cells is one parsed row.
@@ -113,6 +140,7 @@ func (r *reader) newRowTally(K int) *rowTally {
 		catIncomplete: map[string]int{},
 		pat:           make([]byte, len(r.cols)),
 		xs:            make([]float64, K),
+		clusters:      map[string]string{},
 	}
 	for i, l := range opt.Categories {
 		t.labels[l] = i
@@ -215,6 +243,17 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 	return row, nil
 }
 
+// intern returns one copy of a cluster id for all rows that have it, so
+// that kept ids do not hold on to the text they were read from.
+func (t *rowTally) intern(s string) string {
+	if c, ok := t.clusters[s]; ok {
+		return c
+	}
+	c := strings.Clone(s)
+	t.clusters[c] = c
+	return c
+}
+
 // countIncomplete counts a row with a missing value: under its first
 // missing column, under its pattern, and (when its outcome is present)
 // under its outcome value for each column it misses.
@@ -242,6 +281,9 @@ func (r *reader) keepRow(t *rowTally, d *Dataset, row cells) {
 	opt := &r.opt
 	line, _ := r.cr.FieldPos(0)
 	for _, c := range r.cols {
+		if len(t.levelSeen) == 0 {
+			break
+		}
 		if c.role == rolePredictor && t.levelSeen[c.name] != nil {
 			t.levelSeen[c.name][int(t.xs[c.pos])] += row.w
 		}
@@ -257,7 +299,7 @@ func (r *reader) keepRow(t *rowTally, d *Dataset, row cells) {
 		d.Offset = append(d.Offset, row.off)
 	}
 	if opt.Cluster != "" {
-		d.Cluster = append(d.Cluster, row.cl)
+		d.Cluster = append(d.Cluster, t.intern(row.cl))
 	}
 }
 

@@ -1,0 +1,286 @@
+package main
+
+import (
+	"bufio"
+	"encoding/json"
+	"fmt"
+	"io"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"slices"
+	"strconv"
+	"strings"
+	"time"
+
+	"github.com/parquet-go/parquet-go"
+
+	"ordplan/runner/data"
+	"ordplan/runner/fit"
+)
+
+// ingestTarget is the reading speed the CSV reader aims at on this machine,
+// in MB/s (10^6 bytes per second).
+const ingestTarget = 250
+
+// ingestFile is one data file the ingest benchmark reads.
+type ingestFile struct {
+	what    string
+	path    string
+	dialect data.Dialect
+}
+
+// ingestResult is what one reading of a file in a fresh process measured.
+type ingestResult struct {
+	Seconds  float64 `json:"seconds"`
+	Rows     int     `json:"rows"`
+	HeapPeak uint64  `json:"heap_peak"` // largest heap in use while reading
+	RSSPeak  uint64  `json:"rss_peak"`  // the process's peak resident set (VmHWM), bytes
+}
+
+// writeIngestFiles writes the generator's rows (K predictors, two
+// categories) as CSV in three ways (comma and point with six significant
+// digits; semicolon and decimal comma; comma with every digit a float64
+// needs to round-trip) and as Parquet, into dir.
+func writeIngestFiles(dir string, n, K int) ([]ingestFile, error) {
+	d := generate(n, K, 2, 11)
+	names := []string{"y"}
+	for k := 1; k <= K; k++ {
+		names = append(names, fmt.Sprintf("x%02d", k))
+	}
+	type variant struct {
+		what   string
+		file   string
+		delim  byte
+		digits int
+		comma  bool
+	}
+	variants := []variant{
+		{"CSV, comma, 6 significant digits", "six.csv", ',', 6, false},
+		{"CSV, semicolon, decimal comma, 6 digits", "semicolon.csv", ';', 6, true},
+		{"CSV, comma, round-trip digits (up to 17)", "full.csv", ',', -1, false},
+	}
+	var out []ingestFile
+	for _, v := range variants {
+		path := filepath.Join(dir, v.file)
+		f, err := os.Create(path)
+		if err != nil {
+			return nil, err
+		}
+		w := bufio.NewWriterSize(f, 1<<20)
+		w.WriteString(strings.Join(names, string(v.delim)) + "\n")
+		var buf []byte
+		for i := 0; i < n; i++ {
+			buf = strconv.AppendInt(buf[:0], int64(d.Y[i]), 10)
+			for k := 0; k < K; k++ {
+				buf = append(buf, v.delim)
+				x := d.X[i*K+k]
+				if k%2 == 0 {
+					buf = strconv.AppendInt(buf, int64(x), 10)
+					continue
+				}
+				start := len(buf)
+				buf = strconv.AppendFloat(buf, x, 'g', v.digits, 64)
+				if v.comma {
+					for j := start; j < len(buf); j++ {
+						if buf[j] == '.' {
+							buf[j] = ','
+						}
+					}
+				}
+			}
+			buf = append(buf, '\n')
+			w.Write(buf)
+		}
+		if err := w.Flush(); err != nil {
+			return nil, err
+		}
+		if err := f.Close(); err != nil {
+			return nil, err
+		}
+		dl := data.Dialect{}
+		if v.delim == ';' {
+			dl = data.Dialect{Delimiter: ';', DecimalComma: true}
+		}
+		out = append(out, ingestFile{v.what, path, dl})
+	}
+	path := filepath.Join(dir, "rows.parquet")
+	if err := writeParquet(path, d, names); err != nil {
+		return nil, err
+	}
+	out = append(out, ingestFile{"Parquet, int64 outcome, double predictors", path, data.Dialect{}})
+	return out, nil
+}
+
+// writeParquet writes the rows as a flat Parquet file: the outcome as
+// int64, the predictors as doubles.
+func writeParquet(path string, d *fit.Data, names []string) error {
+	group := parquet.Group{names[0]: parquet.Leaf(parquet.Int64Type)}
+	for _, n := range names[1:] {
+		group[n] = parquet.Leaf(parquet.DoubleType)
+	}
+	schema := parquet.NewSchema("rows", group)
+	f, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	defer f.Close()
+	w := parquet.NewWriter(f, schema)
+	K := len(names) - 1
+	col := map[string]int{}
+	for j, n := range names {
+		col[n] = j
+	}
+	rows := make([]parquet.Row, 0, 4096)
+	for i := 0; i < len(d.Y); i++ {
+		row := make(parquet.Row, 0, K+1)
+		for ci, p := range schema.Columns() {
+			j := col[p[0]]
+			if j == 0 {
+				row = append(row, parquet.Int64Value(int64(d.Y[i])).Level(0, 0, ci))
+			} else {
+				row = append(row, parquet.DoubleValue(d.X[i*K+j-1]).Level(0, 0, ci))
+			}
+		}
+		rows = append(rows, row)
+		if len(rows) == cap(rows) || i == len(d.Y)-1 {
+			if _, err := w.WriteRows(rows); err != nil {
+				return err
+			}
+			rows = rows[:0]
+		}
+	}
+	return w.Close()
+}
+
+// ingestChild reads one file once, in this (fresh) process, and prints
+// what it measured as JSON: called by ingest through the -ingest-child flag.
+func ingestChild(path, mode string, delim string, decimalComma bool, K int) {
+	opt := data.Options{Outcome: "y"}
+	for k := 1; k <= K; k++ {
+		opt.Predictors = append(opt.Predictors, fmt.Sprintf("x%02d", k))
+	}
+	if delim != "" {
+		opt.Dialect.Delimiter = rune(delim[0])
+	}
+	opt.Dialect.DecimalComma = decimalComma
+	var ds *data.Dataset
+	var err error
+	var secs float64
+	pk := peak(func() {
+		t0 := time.Now()
+		if mode == "stream" {
+			var f *os.File
+			if f, err = os.Open(path); err == nil {
+				ds, err = data.ReadStream(f, path, opt)
+				f.Close()
+			}
+		} else {
+			ds, err = data.Load(path, opt)
+		}
+		secs = time.Since(t0).Seconds()
+	})
+	if err != nil {
+		fmt.Fprintln(os.Stderr, "bench:", err)
+		os.Exit(1)
+	}
+	json.NewEncoder(os.Stdout).Encode(ingestResult{Seconds: secs, Rows: ds.N, HeapPeak: pk, RSSPeak: vmHWM()})
+}
+
+// vmHWM is the process's peak resident set size in bytes (0 when unknown).
+func vmHWM() uint64 {
+	raw, err := os.ReadFile("/proc/self/status")
+	if err != nil {
+		return 0
+	}
+	for _, ln := range strings.Split(string(raw), "\n") {
+		if rest, ok := strings.CutPrefix(ln, "VmHWM:"); ok {
+			kb, _ := strconv.ParseUint(strings.TrimSpace(strings.TrimSuffix(strings.TrimSpace(rest), "kB")), 10, 64)
+			return kb << 10
+		}
+	}
+	return 0
+}
+
+// ingest writes the files, then reads each of them `repeats` times in fresh
+// processes, the record-at-a-time reader (ReadStream) and the chunked
+// parallel reader (Load) taking turns, and reports the best and the median.
+func ingest(w io.Writer, n, repeats int) {
+	const K = 10
+	dir, err := os.MkdirTemp("", "ordplan-ingest-")
+	if err != nil {
+		fmt.Fprintln(w, "ingest: ", err)
+		return
+	}
+	defer os.RemoveAll(dir)
+	files, err := writeIngestFiles(dir, n, K)
+	if err != nil {
+		fmt.Fprintln(w, "ingest: ", err)
+		return
+	}
+	self, err := os.Executable()
+	if err != nil {
+		fmt.Fprintln(w, "ingest: ", err)
+		return
+	}
+	xBytes := float64(n * K * 8)
+	fmt.Fprintf(w, "\n## Reading data\n\nn = %d rows, K = %d predictors (half 0/1), two categories; each reading in a fresh process (file in the page cache), %d times, the two readers taking turns. MB = 10^6 bytes; target %d MB/s. \"Peak heap / X\" and \"peak RSS / X\": the largest heap in use while reading, and the process's peak resident set, over the design matrix (n K 8 bytes = %.0f MB).\n\n", n, K, repeats, ingestTarget, xBytes/1e6)
+	fmt.Fprintln(w, "| file | MB | reader | best s | median s | MB/s (best) | ratio to target | peak heap / X | peak RSS / X |\n|---|---|---|---|---|---|---|---|---|")
+	for _, f := range files {
+		fi, err := os.Stat(f.path)
+		if err != nil {
+			continue
+		}
+		mb := float64(fi.Size()) / 1e6
+		modes := []string{"stream", "load"}
+		if strings.HasSuffix(f.path, ".parquet") {
+			modes = []string{"load"}
+		}
+		res := map[string][]ingestResult{}
+		for r := 0; r < repeats; r++ {
+			for _, m := range modes {
+				args := []string{"-ingest-child", f.path, "-ingest-mode", m}
+				if f.dialect.Delimiter != 0 {
+					args = append(args, "-ingest-delim", string(f.dialect.Delimiter))
+				}
+				if f.dialect.DecimalComma {
+					args = append(args, "-ingest-decimal-comma")
+				}
+				out, err := exec.Command(self, args...).Output()
+				var ir ingestResult
+				if err == nil {
+					err = json.Unmarshal(out, &ir)
+				}
+				if err != nil {
+					fmt.Fprintf(w, "| %s | %.1f | %s | error: %v | | | | | |\n", f.what, mb, m, err)
+					continue
+				}
+				res[m] = append(res[m], ir)
+			}
+		}
+		for _, m := range modes {
+			rs := res[m]
+			if len(rs) == 0 {
+				continue
+			}
+			secs := make([]float64, len(rs))
+			var heap, rss uint64
+			for i, r := range rs {
+				secs[i] = r.Seconds
+				heap = max(heap, r.HeapPeak)
+				rss = max(rss, r.RSSPeak)
+			}
+			slices.Sort(secs)
+			best, med := secs[0], secs[len(secs)/2]
+			if len(secs)%2 == 0 {
+				med = (secs[len(secs)/2-1] + secs[len(secs)/2]) / 2
+			}
+			name := "chunked, parallel (Load)"
+			if m == "stream" {
+				name = "record at a time (ReadStream)"
+			}
+			fmt.Fprintf(w, "| %s | %.1f | %s | %.3f | %.3f | %.0f | %.2f | %.2f | %.2f |\n",
+				f.what, mb, name, best, med, mb/best, mb/best/ingestTarget, float64(heap)/xBytes, float64(rss)/xBytes)
+		}
+	}
+}

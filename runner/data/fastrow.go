@@ -1,0 +1,236 @@
+package data
+
+import (
+	"strings"
+)
+
+// The fast way through a line: the used cells are read straight from the
+// line's text, without splitting it into cells first. It only ever takes a
+// row the general way (parseRow) would take identically: every used cell
+// present (not a missing-value marker) and valid, and as many fields as the
+// header. Anything else gives up, and the line goes the general way, which
+// decides and words what is wrong.
+
+// fastKind is how the fast way reads a field.
+type fastKind int
+
+const (
+	fastSkip    fastKind = iota // not used
+	fastCode                    // outcome: an integer code
+	fastLabel                   // outcome: a declared category
+	fastNumber                  // numeric predictor
+	fastLevel                   // categorical predictor: a declared level
+	fastWeight                  // frequency weight: a number, zero or more
+	fastOffset                  // offset: a number
+	fastCluster                 // cluster id: any text
+)
+
+// fastField is how one field of the file is read.
+type fastField struct {
+	kind   fastKind
+	name   string         // the column
+	pos    int            // position among the predictors
+	levels map[string]int // fastLabel, fastLevel: text -> index
+	// check: some missing-value marker of the column reads as a valid
+	// cell, so a valid cell must also be checked against the markers.
+	check bool
+}
+
+// fastPlan says how the fast way reads each field of a line.
+type fastPlan struct {
+	fields []fastField
+	delim  byte
+	mark   byte // decimal mark
+}
+
+// newFastPlan builds the plan of the fast way for the used columns, or
+// returns nil when rows need the general way (subset conditions).
+func (r *reader) newFastPlan(t *rowTally) *fastPlan {
+	if len(r.opt.Keep) > 0 {
+		return nil
+	}
+	p := &fastPlan{fields: make([]fastField, r.width), delim: byte(r.opt.Dialect.delim()), mark: '.'}
+	if r.opt.Dialect.DecimalComma {
+		p.mark = ','
+	}
+	for _, c := range r.cols {
+		f := fastField{name: c.name, pos: c.pos}
+		switch c.role {
+		case roleOutcome:
+			f.kind = fastCode
+			if len(r.opt.Categories) > 0 {
+				f.kind, f.levels = fastLabel, t.labels
+			}
+		case rolePredictor:
+			f.kind = fastNumber
+			if idx, cat := t.levelIndex[c.name]; cat {
+				f.kind, f.levels = fastLevel, idx
+			}
+		case roleWeights:
+			f.kind = fastWeight
+		case roleOffset:
+			f.kind = fastOffset
+		case roleCluster:
+			f.kind = fastCluster
+		default:
+			return nil
+		}
+		f.check = f.kind == fastCluster
+		for tok := range r.missing {
+			f.check = f.check || p.valid(&f, tok)
+		}
+		for _, tok := range r.opt.ColumnMissing[c.name] {
+			f.check = f.check || p.valid(&f, strings.TrimSpace(tok))
+		}
+		p.fields[c.index] = f
+	}
+	return p
+}
+
+// valid reports whether the fast way reads cell as a valid value of f.
+func (p *fastPlan) valid(f *fastField, cell string) bool {
+	switch f.kind {
+	case fastCode:
+		_, ok := integer(cell)
+		return ok
+	case fastLabel, fastLevel:
+		_, ok := f.levels[cell]
+		return ok
+	case fastNumber, fastWeight, fastOffset:
+		_, ok := decimal(cell, p.mark)
+		return ok
+	}
+	return true
+}
+
+// fastRow reads a line the fast way into a row (and t.xs); false when the
+// line needs the general way.
+func (r *reader) fastRow(p *fastPlan, t *rowTally, line string) (cells, bool) {
+	row := cells{miss: -1, w: 1}
+	last := len(p.fields) - 1
+	i := 0 // start of the current field
+	for fi := range p.fields {
+		f := &p.fields[fi]
+		var cell string // the field, trimmed
+		var end int     // where the field ends: the next delimiter or the end of the line
+		var v float64
+		ok := true
+		switch f.kind {
+		case fastNumber, fastWeight, fastOffset:
+			i = p.skipSpace(line, i)
+			n, found := scanDecimal(line, i, p.mark)
+			end = p.skipSpace(line, n.end)
+			if !found || end < len(line) && line[end] != p.delim {
+				return row, false
+			}
+			cell = line[i:n.end]
+			v, ok = n.value(cell, p.mark)
+		default:
+			if end = strings.IndexByte(line[i:], p.delim); end < 0 {
+				end = len(line)
+			} else {
+				end += i
+			}
+			if f.kind != fastSkip {
+				cell = trimASCII(line[i:end])
+				if cell != "" && (cell[0] >= 0x80 || cell[len(cell)-1] >= 0x80) {
+					return row, false // perhaps white space beyond ASCII, which the general way trims
+				}
+			}
+		}
+		if (fi == last) != (end == len(line)) {
+			return row, false // not as many fields as the header
+		}
+		i = end + 1
+		switch f.kind {
+		case fastSkip:
+			continue
+		case fastCode:
+			row.code, ok = integer(cell)
+		case fastLabel:
+			row.y, ok = f.levels[cell]
+		case fastNumber:
+			t.xs[f.pos] = v
+		case fastLevel:
+			var l int
+			l, ok = f.levels[cell]
+			t.xs[f.pos] = float64(l)
+		case fastWeight:
+			row.w = v
+			ok = ok && v >= 0
+		case fastOffset:
+			row.off = v
+		case fastCluster:
+			row.cl = cell
+		}
+		if !ok || f.check && r.missingIn(f.name, cell) {
+			return row, false
+		}
+	}
+	return row, true
+}
+
+// skipSpace skips ASCII white space other than the delimiter from s[i].
+func (p *fastPlan) skipSpace(s string, i int) int {
+	for i < len(s) && isSpaceByte(s[i]) && s[i] != p.delim {
+		i++
+	}
+	return i
+}
+
+// fork returns a tally for a chunk of the rows: the same lookups, its own
+// counts.
+func (t *rowTally) fork() *rowTally {
+	f := &rowTally{
+		labels:        t.labels,
+		condCol:       t.condCol,
+		levelIndex:    t.levelIndex,
+		levelSeen:     make(map[string][]float64, len(t.levelSeen)),
+		drops:         make([]int, len(t.drops)),
+		subsetDrops:   make([]int, len(t.subsetDrops)),
+		patterns:      map[string]int{},
+		catMiss:       map[string][]int{},
+		catIncomplete: map[string]int{},
+		pat:           make([]byte, len(t.pat)),
+		xs:            make([]float64, len(t.xs)),
+		clusters:      map[string]string{},
+	}
+	for col, seen := range t.levelSeen {
+		f.levelSeen[col] = make([]float64, len(seen))
+	}
+	return f
+}
+
+// join adds the counts of a chunk's tally (not its codes) to t.
+func (t *rowTally) join(c *rowTally) {
+	for col, seen := range c.levelSeen {
+		for l, w := range seen {
+			t.levelSeen[col][l] += w
+		}
+	}
+	for i, n := range c.drops {
+		t.drops[i] += n
+	}
+	for i, n := range c.subsetDrops {
+		t.subsetDrops[i] += n
+	}
+	t.zeroWeight += c.zeroWeight
+	for k, n := range c.patterns {
+		t.patterns[k] += n
+	}
+	for k, m := range c.catMiss {
+		if tm, ok := t.catMiss[k]; ok {
+			for i, n := range m {
+				tm[i] += n
+			}
+		} else {
+			t.catMiss[strings.Clone(k)] = m
+		}
+	}
+	for k, n := range c.catIncomplete {
+		if _, ok := t.catIncomplete[k]; !ok {
+			k = strings.Clone(k)
+		}
+		t.catIncomplete[k] += n
+	}
+}
