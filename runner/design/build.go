@@ -185,10 +185,7 @@ func (d *Design) buildCategorical(t *Term, src Source, v, w []float64) error {
 	for i, x := range v {
 		count[int(x)] += weight(w, i)
 	}
-	ref := c.Reference
-	if ref == "" {
-		ref = c.Levels[0]
-	}
+	ref := referenceOf(c)
 	var keptIdx []int
 	for l, name := range c.Levels {
 		if count[l] > 0 {
@@ -214,12 +211,8 @@ func (d *Design) buildCategorical(t *Term, src Source, v, w []float64) error {
 	r := slices.Index(t.Kept, ref)
 	K := len(t.Kept)
 	t.code = map[int][]float64{}
-	var names []string
 	switch c.Coding {
 	case Successive:
-		for k := 1; k < K; k++ {
-			names = append(names, t.Name+"."+LevelName(t.Kept[k]))
-		}
 		for j, l := range keptIdx {
 			row := make([]float64, K-1)
 			for k := 1; k < K; k++ {
@@ -230,11 +223,6 @@ func (d *Design) buildCategorical(t *Term, src Source, v, w []float64) error {
 			t.code[l] = row
 		}
 	default: // treatment and sum: one column per kept level other than the reference
-		for j, name := range t.Kept {
-			if j != r {
-				names = append(names, t.Name+"."+LevelName(name))
-			}
-		}
 		for j, l := range keptIdx {
 			row := make([]float64, K-1)
 			switch {
@@ -252,7 +240,7 @@ func (d *Design) buildCategorical(t *Term, src Source, v, w []float64) error {
 			t.code[l] = row
 		}
 	}
-	t.Columns = names
+	t.Columns = categoricalNames(t.Name, t.Kept, ref, c.Coding)
 	return nil
 }
 
@@ -261,7 +249,7 @@ func (d *Design) buildInteraction(t *Term, ts TermSpec, index map[string]int) er
 	if len(ts.Interact) < 2 {
 		return &Error{Key: ts.Key, Msg: "an interaction needs at least two terms"}
 	}
-	cols := []string{""}
+	var parts [][]string
 	for _, name := range ts.Interact {
 		k, ok := index[name]
 		if !ok {
@@ -271,17 +259,7 @@ func (d *Design) buildInteraction(t *Term, ts TermSpec, index map[string]int) er
 			return &Error{Key: ts.Key, Msg: fmt.Sprintf("term %q appears twice in the interaction", name)}
 		}
 		t.Parts = append(t.Parts, k)
-		var next []string
-		for _, a := range cols {
-			for _, b := range d.Terms[k].Columns {
-				if a == "" {
-					next = append(next, b)
-				} else {
-					next = append(next, a+"&"+b)
-				}
-			}
-		}
-		cols = next
+		parts = append(parts, d.Terms[k].Columns)
 	}
 	// The same raw column in two components (say age and age squared) is
 	// allowed; two categorical components on one column are not.
@@ -294,7 +272,7 @@ func (d *Design) buildInteraction(t *Term, ts TermSpec, index map[string]int) er
 			seen[s] = true
 		}
 	}
-	t.Columns = cols
+	t.Columns = productNames(parts)
 	return nil
 }
 

@@ -170,6 +170,16 @@ func TestDerivativeThroughTerms(t *testing.T) {
 	if !strings.Contains(strings.Join(d.Columns, " "), "site.e&age.s.2") {
 		t.Errorf("columns %v lack site.e&age.s.2", d.Columns)
 	}
+	// The names known without data are the names Build gives.
+	names, err := Names(spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for k, tm := range d.Terms {
+		if strings.Join(names[k], " ") != strings.Join(tm.Columns, " ") {
+			t.Errorf("term %s: Names %v, Build %v", tm.Name, names[k], tm.Columns)
+		}
+	}
 	for _, s := range []int{0, 2} {
 		for i := 0; i < 5; i++ {
 			r := append([]float64(nil), raw[i*3:i*3+3]...)

@@ -52,9 +52,6 @@ func (d *Design) buildNumeric(t *Term, column string, v, w []float64, lines []in
 		if !tr.PolyRaw {
 			t.Alpha, t.Norm2 = orthoPoly(u, w, tr.Poly)
 		}
-		for k := 1; k <= tr.Poly; k++ {
-			t.Columns = append(t.Columns, fmt.Sprintf("%s.%d", t.Name, k))
-		}
 	case tr.Spline():
 		t.Knots = slices.Clone(tr.Knots)
 		if tr.Quantiles != nil {
@@ -68,12 +65,8 @@ func (d *Design) buildNumeric(t *Term, column string, v, w []float64, lines []in
 				return &Error{Key: t.Key, Column: column, Msg: fmt.Sprintf("the spline knots %s are not strictly increasing on the transformed values (too few distinct values for the quantiles asked)", numList(t.Knots))}
 			}
 		}
-		for k := 1; k < len(t.Knots); k++ {
-			t.Columns = append(t.Columns, fmt.Sprintf("%s.%d", t.Name, k))
-		}
-	default:
-		t.Columns = []string{t.Name}
 	}
+	t.Columns = numericNames(t.Name, tr, len(t.Knots))
 	return nil
 }
 

@@ -127,11 +127,7 @@ func (d *Design) Level(s int, level string) int {
 func (d *Design) Coded(s int) ([]string, string) {
 	for _, t := range d.Terms {
 		if t.Kind == KindCategorical && t.Source == s {
-			ref := d.Sources[s].Cat.Reference
-			if ref == "" {
-				ref = d.Sources[s].Cat.Levels[0]
-			}
-			return t.Kept, ref
+			return t.Kept, referenceOf(d.Sources[s].Cat)
 		}
 	}
 	return nil, ""
