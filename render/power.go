@@ -28,8 +28,8 @@ func PowerOutputs(pr *simulate.PowerResult) (map[string][]byte, error) {
 	for i, n := range pr.Sizes {
 		sizes[i] = fmt.Sprint(n)
 	}
-	d.p("**%s.** No real observation was used: `ordplan power` drew %d data sets at each sample size (%s) from the plan's `assumptions` and data dictionary (seed %d, cumulative %s model generating each outcome) and ran the plan's whole decision procedure on each: the grid of fits, the tests, the rules in order and the plan's hypotheses in the chosen model (Wald tests at alpha %g). Written by ordplan %s from the plan `%s` (sha256 `%s`).",
-		SimulatedMark, pr.Replicates, strings.Join(sizes, ", "), pr.Seed, pr.Link, pr.Alpha, pr.Version, pr.PlanFile, pr.PlanSHA256)
+	d.p("**%s.** No real observation was used: `ordplan power` drew %d data sets at each sample size (%s) from the plan's `assumptions` and data dictionary (seed %d, %s model generating each outcome) and ran the plan's whole decision procedure on each: the grid of fits, the tests, the rules in order and the plan's hypotheses in the chosen model (Wald tests at alpha %g). Written by ordplan %s from the plan `%s` (sha256 `%s`).",
+		SimulatedMark, pr.Replicates, strings.Join(sizes, ", "), pr.Seed, pr.Generator, pr.Alpha, pr.Version, pr.PlanFile, pr.PlanSHA256)
 	d.p("Every rate is a share of the %d replicates of a size, with its Monte Carlo standard error sqrt(p(1-p)/R) in brackets.", pr.Replicates)
 	for _, op := range pr.Outcomes {
 		d.h(2, "Outcome `"+op.Outcome+"`")
@@ -38,10 +38,14 @@ func PowerOutputs(pr *simulate.PowerResult) (map[string][]byte, error) {
 		writePowerProblems(d, op)
 	}
 	d.h(2, "Assumptions and limits")
+	corr := "predictors that are correlated (they are drawn independently here)"
+	if len(pr.Correlations) > 0 {
+		corr = "other correlations between predictors (stated: " + strings.Join(pr.Correlations, "; ") + ", as correlations of normal scores; the other columns are drawn independently)"
+	}
 	d.list([]string{
-		"Power is computed under the stated assumptions only: other category proportions or effects, predictors that are correlated (they are drawn independently here), missing values or clustering give other numbers.",
+		"Power is computed under the stated assumptions only: other category proportions or effects, " + corr + ", missing values or clustering give other numbers.",
 		"A hypothesis counts as rejected only in the model the rules chose; a replicate whose chosen model does not have the hypothesis's parameters, or where no model was chosen, counts as not rejected (the column \"not testable\").",
-		"The share of replicates choosing each model shows whether the rules find the structure that generated the data: a cumulative model with the stated parallel and nonparallel effects.",
+		"The share of replicates choosing each model shows whether the rules find the structure that generated the data: a " + pr.Generator + " model with the stated parallel and nonparallel effects.",
 	})
 	page, err := d.html(title)
 	if err != nil {

@@ -7,7 +7,12 @@ type Simulation struct {
 	N       int    `json:"n"`
 	Seed    uint64 `json:"seed"`
 	Link    string `json:"link"`
-	File    string `json:"file"` // the simulated data file among the outputs
+	Model   string `json:"generating_model"` // comparison (direction) and link, e.g. "cumulative logit"
+	File    string `json:"file"`             // the simulated data file among the outputs
+	// Subset: the plan's subset conditions, and how many of the N
+	// simulated rows they kept (nil without a subset).
+	Subset []string `json:"subset,omitempty"`
+	Kept   *int     `json:"subset_kept,omitempty"`
 }
 
 // WriteReport writes the named files of a report that is not a plan run

@@ -83,7 +83,14 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, fmt.Errorf("rehearsal on simulated data: %w", err))
 	}
-	res.Simulated = &runner.Simulation{Command: "rehearse", N: rows, Seed: p.Seed, Link: sim.Link.String(), File: simulatedFile}
+	res.Simulated = &runner.Simulation{Command: "rehearse", N: rows, Seed: p.Seed, Link: sim.Link.String(), Model: sim.GeneratingModel(), File: simulatedFile}
+	if len(p.Subset) > 0 && len(res.Outcomes) > 0 && res.Outcomes[0].Data != nil {
+		kept := res.Outcomes[0].Data.RowsRead - res.Outcomes[0].Data.RowsOutside
+		res.Simulated.Kept = &kept
+		for _, c := range p.Subset {
+			res.Simulated.Subset = append(res.Simulated.Subset, c.String())
+		}
+	}
 	dec := runner.BuildDecisions(res)
 	files, err := render.Outputs(res, dec, nil)
 	if err != nil {

@@ -321,6 +321,14 @@ func mulZero(a, b float64) float64 {
 	return a * b
 }
 
+// CategoryProbabilities fills p (length J) with the category probabilities
+// of comparison c (backward: the stage comparison from the top category)
+// and link l at the J-1 linear predictors L, as a fit computes them.
+func CategoryProbabilities(c Comparison, backward bool, l Link, L, p []float64) {
+	k := kernel{cmp: c, backward: backward && c == Stage, link: l, nEq: len(L)}
+	k.probs(L, p)
+}
+
 // probs fills p (length J) with the category probabilities at L. For
 // cumulative models they can be negative when the L_m are not increasing.
 func (k *kernel) probs(L []float64, p []float64) {

@@ -103,6 +103,10 @@ type PowerResult struct {
 	Title      string         `json:"title"`
 	Seed       uint64         `json:"seed"`
 	Link       string         `json:"link"`
+	Generator  string         `json:"generating_model"` // comparison (direction) and link, e.g. "cumulative logit"
+	// Correlations stated between predictor columns ("a, b: r = 0.3"); the
+	// other columns are drawn independently.
+	Correlations []string `json:"correlations,omitempty"`
 	Replicates int            `json:"replicates"`
 	Alpha      float64        `json:"alpha"`
 	Sizes      []int          `json:"sizes"`
@@ -141,10 +145,13 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 		return nil, err
 	}
 	defer os.RemoveAll(tmp)
-	res := &PowerResult{Simulated: true, PlanFile: filepath.Base(p.Path), PlanSHA256: p.Hash, Title: p.Title, Seed: p.Seed, Link: sim.Link.String(),
+	res := &PowerResult{Simulated: true, PlanFile: filepath.Base(p.Path), PlanSHA256: p.Hash, Title: p.Title, Seed: p.Seed, Link: sim.Link.String(), Generator: sim.GeneratingModel(),
 		Replicates: opt.Replicates, Alpha: opt.Alpha, Sizes: opt.Sizes, Version: runner.Version}
+	for _, c := range p.Assumptions.Correlations {
+		res.Correlations = append(res.Correlations, fmt.Sprintf("%s, %s: r = %g", c.A, c.B, c.R))
+	}
 	for _, oc := range p.Outcomes {
-		res.Outcomes = append(res.Outcomes, generating(p, oc, sim.Link))
+		res.Outcomes = append(res.Outcomes, generating(p, oc, sim))
 	}
 	for _, n := range opt.Sizes {
 		reps := make([]replicate, opt.Replicates)
@@ -299,33 +306,37 @@ func summarize(p *plan.Plan, n int, reps []replicate, oi int) SizeResult {
 	return sr
 }
 
-// generating names the candidate with the structure that generated the data.
-func generating(p *plan.Plan, oc plan.Outcome, link fit.Link) OutcomePower {
+// generating names the candidate with the structure that generated the
+// data: the generating comparison, direction and link, with parallel
+// effects, the stated nonparallel terms free (partial), or every term free.
+func generating(p *plan.Plan, oc plan.Outcome, sim *Sim) OutcomePower {
 	op := OutcomePower{Outcome: oc.Column, Nonparallel: []string{}}
 	for _, oa := range p.Assumptions.Outcomes {
 		if oa.Column != oc.Column {
 			continue
 		}
-		for _, t := range oa.EffectOrder {
-			if _, ok := oa.Nonparallel[t]; ok {
-				op.Nonparallel = append(op.Nonparallel, t)
+		for _, te := range oa.Terms {
+			if te.Nonparallel {
+				op.Nonparallel = append(op.Nonparallel, te.Term)
 			}
 		}
 	}
 	has := func(effects fit.Structure) bool {
-		return p.Models.HasApproach(fit.Cumulative) && slices.Contains(p.Models.Links, link) && p.Models.HasEffects(effects)
+		return p.Models.HasApproach(sim.Comparison) && slices.Contains(p.Models.Links, sim.Link) && p.Models.HasEffects(effects) &&
+			(sim.Comparison != fit.Stage || sim.Backward == p.Models.Backward())
 	}
 	sameSet := func(a, b []string) bool {
 		return len(a) == len(b) && !slices.ContainsFunc(a, func(x string) bool { return !slices.Contains(b, x) })
 	}
 	terms := p.PredictorsOf(oc)
+	cmp := fit.Model{Comparison: sim.Comparison, Backward: sim.Backward}.ComparisonName()
 	switch {
 	case len(op.Nonparallel) == 0 && has(fit.ParallelEffects):
-		op.Generating = fit.ModelID("cumulative", fit.ParallelEffects.String(), link)
+		op.Generating = fit.ModelID(cmp, fit.ParallelEffects.String(), sim.Link)
 	case len(op.Nonparallel) == len(terms) && has(fit.NonparallelEffects):
-		op.Generating = fit.ModelID("cumulative", fit.NonparallelEffects.String(), link)
+		op.Generating = fit.ModelID(cmp, fit.NonparallelEffects.String(), sim.Link)
 	case p.Models.Partial.Select == nil && sameSet(op.Nonparallel, p.Models.Partial.Free) && has(fit.PartialEffects):
-		op.Generating = fit.ModelID("cumulative", fit.PartialEffects.String(), link)
+		op.Generating = fit.ModelID(cmp, fit.PartialEffects.String(), sim.Link)
 	}
 	return op
 }

@@ -11,11 +11,12 @@ import (
 	"strings"
 
 	"ordplan/plan"
+	"ordplan/runner/design"
 	"ordplan/runner/fit"
 )
 
 // CalibrationRows is the size of the predictor sample the cutpoints are
-// solved on.
+// solved on (and the design constants frozen on).
 const CalibrationRows = 100_000
 
 // Predictor is how one raw column is drawn.
@@ -24,6 +25,7 @@ type Predictor struct {
 	Kind        string    // "levels" (categorical or listed values), "normal" or "uniform"
 	Values      []string  // levels or values, as written
 	Numbers     []float64 // the values as numbers (numeric columns with values)
+	Categorical bool      // levels of a categorical column (the design reads the level index)
 	Proportions []float64
 	Mean, SD    float64
 	Range       []float64 // nil = unbounded
@@ -35,18 +37,27 @@ type Outcome struct {
 	Categories  []string
 	Proportions []float64
 	Cut         []float64 // J-1 cutpoints solved on the calibration sample
-	// Slope[m][k]: slope of predictor column k at boundary m; for a
-	// categorical column, LevelSlope[k][level] is used instead.
-	Slope      [][]float64
-	LevelSlope map[int][]float64
+	// Design makes the outcome's design columns from the raw columns, its
+	// constants frozen on the calibration sample; Sources[s] is the
+	// simulated column of its raw column s.
+	Design  *design.Design
+	Sources []int
+	// Beta[m][c]: coefficient of design column c at boundary m.
+	Beta [][]float64
 }
 
 // Sim draws data sets from a plan.
 type Sim struct {
 	Plan       *plan.Plan
 	Link       fit.Link
+	Comparison fit.Comparison
+	Backward   bool // stage comparison from the top category
 	Predictors []Predictor
 	Outcomes   []Outcome
+	// Correlated lists the predictors drawn together through a Gaussian
+	// copula, chol the lower Cholesky factor of their correlation matrix.
+	Correlated []int
+	chol       []float64
 	Weights    string // columns written with constant values
 	Offset     string
 	Cluster    string
@@ -59,17 +70,19 @@ func New(p *plan.Plan) (*Sim, error) {
 	if a == nil {
 		return nil, fmt.Errorf("%s: the plan has no assumptions section: state the category proportions and the effects to simulate from (see the README, \"Rehearse and size the study\")", p.Path)
 	}
-	if len(p.Subset) > 0 {
-		return nil, fmt.Errorf("%s: subset: simulated data do not include the subset columns; remove the subset to rehearse the plan", p.Path)
-	}
 	link, err := fit.ParseLink(a.Link)
 	if err != nil {
 		return nil, fmt.Errorf("%s: assumptions.link: %v", p.Path, err)
 	}
-	s := &Sim{Plan: p, Link: link, Weights: p.Data.Weights, Offset: p.Data.Offset, Cluster: p.Data.Cluster, seed: p.Seed}
-	// Predictors.
+	cmp, err := fit.ParseComparison(a.Comparison)
+	if err != nil {
+		return nil, fmt.Errorf("%s: assumptions.comparison: %v", p.Path, err)
+	}
+	s := &Sim{Plan: p, Link: link, Comparison: cmp, Backward: a.Direction == "backward",
+		Weights: p.Data.Weights, Offset: p.Data.Offset, Cluster: p.Data.Cluster, seed: p.Seed}
+	// Predictors: the raw columns of the terms and of the subset.
 	for _, u := range p.UsedColumns() {
-		if u.Role != plan.RolePredictor {
+		if u.Role != plan.RolePredictor && u.Role != plan.RoleSubset {
 			continue
 		}
 		pr, err := predictorOf(p, u.Column)
@@ -78,66 +91,252 @@ func New(p *plan.Plan) (*Sim, error) {
 		}
 		s.Predictors = append(s.Predictors, pr)
 	}
-	// Outcomes.
+	if err := s.correlate(a.Correlations); err != nil {
+		return nil, err
+	}
+	rows := s.calibrationSample()
 	for _, oc := range p.Outcomes {
-		var oa *plan.OutcomeAssumption
-		for i := range a.Outcomes {
-			if a.Outcomes[i].Column == oc.Column {
-				oa = &a.Outcomes[i]
-			}
-		}
-		if oa == nil {
-			return nil, fmt.Errorf("%s: assumptions.outcomes: outcome %q has no assumptions", p.Path, oc.Column)
-		}
-		o := Outcome{Column: oc.Column, Categories: oc.Categories, Proportions: oa.Proportions, LevelSlope: map[int][]float64{}}
-		J := len(oa.Proportions)
-		if o.Categories == nil {
-			for j := 1; j <= J; j++ {
-				o.Categories = append(o.Categories, strconv.Itoa(j))
-			}
-		}
-		o.Slope = make([][]float64, J-1)
-		for m := range o.Slope {
-			o.Slope[m] = make([]float64, len(s.Predictors))
-		}
-		for _, t := range oa.EffectOrder {
-			src := sourceOf(p, oc, t)
-			k := slices.IndexFunc(s.Predictors, func(pr Predictor) bool { return pr.Column == src })
-			if k < 0 {
-				return nil, fmt.Errorf("%s: assumptions: term %q reads no simulated column", p.Path, t)
-			}
-			switch {
-			case oa.Levels[t] != nil:
-				o.LevelSlope[k] = oa.Levels[t]
-			case oa.Nonparallel[t] != nil:
-				for m := range o.Slope {
-					o.Slope[m][k] = oa.Nonparallel[t][m]
-				}
-			default:
-				for m := range o.Slope {
-					o.Slope[m][k] = oa.Effects[t]
-				}
-			}
+		o, err := s.outcome(oc, rows)
+		if err != nil {
+			return nil, err
 		}
 		s.Outcomes = append(s.Outcomes, o)
-	}
-	if err := s.calibrate(); err != nil {
-		return nil, err
 	}
 	return s, nil
 }
 
-func sourceOf(p *plan.Plan, oc plan.Outcome, term string) string {
-	terms := p.Terms
-	if oc.Terms != nil {
-		terms = oc.Terms
+// GeneratingModel names the generating model in words, e.g. "cumulative
+// logit" or "stage (backward) probit".
+func (s *Sim) GeneratingModel() string {
+	c := s.Comparison.String()
+	if s.Comparison == fit.Stage {
+		c += " (" + s.Plan.Assumptions.Direction + ")"
 	}
-	for _, t := range terms {
-		if t.Name == term {
-			return t.Source
+	return c + " " + s.Link.String()
+}
+
+// outcome builds one outcome's generating model on the calibration sample.
+func (s *Sim) outcome(oc plan.Outcome, rows []row) (Outcome, error) {
+	p := s.Plan
+	var oa *plan.OutcomeAssumption
+	for i := range p.Assumptions.Outcomes {
+		if p.Assumptions.Outcomes[i].Column == oc.Column {
+			oa = &p.Assumptions.Outcomes[i]
 		}
 	}
-	return ""
+	if oa == nil {
+		return Outcome{}, fmt.Errorf("%s: assumptions.outcomes: outcome %q has no assumptions", p.Path, oc.Column)
+	}
+	o := Outcome{Column: oc.Column, Categories: oc.Categories, Proportions: oa.Proportions}
+	J := len(oa.Proportions)
+	if o.Categories == nil {
+		for j := 1; j <= J; j++ {
+			o.Categories = append(o.Categories, strconv.Itoa(j))
+		}
+	}
+	// The design, frozen on the calibration sample as a run freezes it on
+	// the data.
+	spec := p.DesignSpec(oc)
+	for _, src := range spec.Sources {
+		k := slices.IndexFunc(s.Predictors, func(pr Predictor) bool { return pr.Column == src.Name })
+		if k < 0 {
+			return o, fmt.Errorf("%s: assumptions: column %q is not simulated", p.Path, src.Name)
+		}
+		o.Sources = append(o.Sources, k)
+	}
+	S := len(o.Sources)
+	raw := make([]float64, len(rows)*S)
+	for i := range rows {
+		o.raw(&rows[i], raw[i*S:(i+1)*S])
+	}
+	dz, err := design.Build(spec, raw, len(rows), nil, nil)
+	if err != nil {
+		return o, fmt.Errorf("%s: the predictors' design cannot be built on the simulated columns (outcome %q): %v", p.Path, oc.Column, err)
+	}
+	o.Design = dz
+	if err := s.coefficients(&o, oa, raw[:S]); err != nil {
+		return o, err
+	}
+	X, _, err := dz.Matrix(raw, len(rows))
+	if err != nil {
+		return o, fmt.Errorf("%s: outcome %q: %v", p.Path, oc.Column, err)
+	}
+	return o, s.calibrate(&o, X, len(rows))
+}
+
+// raw fills the outcome's raw design row from a drawn row: level indices
+// for categorical columns, numbers for the others.
+func (o *Outcome) raw(r *row, out []float64) {
+	for s, k := range o.Sources {
+		if r.cat[k] {
+			out[s] = float64(r.level[k])
+		} else {
+			out[s] = r.x[k]
+		}
+	}
+}
+
+// eta fills e (J-1) with the linear predictors x'b_m of a design row x.
+func (o *Outcome) eta(x, e []float64) {
+	for m, b := range o.Beta {
+		t := 0.0
+		for c, v := range x {
+			t += b[c] * v
+		}
+		e[m] = t
+	}
+}
+
+// coefficients turns the stated effects into coefficients of the design
+// columns, boundary by boundary. base is a raw design row in which one
+// term's own columns are varied.
+func (s *Sim) coefficients(o *Outcome, oa *plan.OutcomeAssumption, base []float64) error {
+	dz := o.Design
+	q := len(o.Proportions) - 1
+	o.Beta = make([][]float64, q)
+	for m := range o.Beta {
+		o.Beta[m] = make([]float64, len(dz.Columns))
+	}
+	for _, te := range oa.Terms {
+		k := dz.Term(te.Term)
+		if k < 0 {
+			return fmt.Errorf("%s: %s: %q is not a term of outcome %q", s.Plan.Path, te.Key, te.Term, o.Column)
+		}
+		t := &dz.Terms[k]
+		var per [][]float64
+		for _, e := range te.Boundaries {
+			b, err := s.termCoefficients(dz, t, e, base)
+			if err != nil {
+				return err
+			}
+			per = append(per, b)
+		}
+		for m := 0; m < q; m++ {
+			b := per[0]
+			if te.Nonparallel {
+				b = per[m]
+			}
+			copy(o.Beta[m][t.First:t.First+len(t.Columns)], b)
+		}
+	}
+	return nil
+}
+
+// termCoefficients gives the coefficients of term t's design columns that
+// make the stated effect e.
+func (s *Sim) termCoefficients(dz *design.Design, t *design.Term, e plan.Effect, base []float64) ([]float64, error) {
+	C := len(t.Columns)
+	b := make([]float64, C)
+	where := fmt.Sprintf("%s:%d: %s", s.Plan.Path, e.Line, e.Key)
+	switch {
+	case e.Form == plan.EffectNumber:
+		b[0] = e.Number
+		return b, nil
+	case e.Form == plan.EffectNamed && e.Levels == nil:
+		for name, x := range e.Named {
+			b[slices.Index(t.Columns, name)] = x
+		}
+		return b, nil
+	}
+	// Levels and points: the term's columns at chosen raw values, solved
+	// with a constant (which the cutpoints absorb) for the stated values.
+	var at, want []float64
+	if e.Form == plan.EffectNamed {
+		for _, lv := range t.Kept {
+			l := dz.Level(t.Source, lv)
+			at, want = append(at, float64(l)), append(want, e.Levels[l])
+		}
+	} else {
+		at, want = e.At, e.Values
+	}
+	A := make([]float64, 0, len(at)*(C+1))
+	x := make([]float64, len(dz.Columns))
+	r := slices.Clone(base)
+	for _, v := range at {
+		r[t.Source] = v
+		if err := dz.Row(r, x); err != nil {
+			return nil, fmt.Errorf("%s: at %s: %v", where, strconv.FormatFloat(v, 'g', -1, 64), err)
+		}
+		A = append(A, x[t.First:t.First+C]...)
+		A = append(A, 1)
+	}
+	sol, ok := solveSquare(A, want)
+	if !ok {
+		return nil, fmt.Errorf("%s: the points %s do not determine the curve of %s's %d design columns (%s): spread them over the range the columns bend in%s",
+			where, numList(at), t.Name, C, strings.Join(t.Columns, ", "), knotText(t))
+	}
+	return sol[:C], nil
+}
+
+func knotText(t *design.Term) string {
+	if t.Knots == nil {
+		return ""
+	}
+	return " (knots at " + numList(t.Knots) + " on the transformed scale)"
+}
+
+func numList(xs []float64) string {
+	parts := make([]string, len(xs))
+	for i, x := range xs {
+		parts[i] = strconv.FormatFloat(x, 'g', 6, 64)
+	}
+	return "[" + strings.Join(parts, ", ") + "]"
+}
+
+// solveSquare solves A x = y (A n x n, row-major) by Gaussian elimination
+// with partial pivoting on the columns scaled to unit size; ok is false
+// when A is singular or nearly so.
+func solveSquare(A, y []float64) ([]float64, bool) {
+	n := len(y)
+	a := slices.Clone(A)
+	x := slices.Clone(y)
+	scale := make([]float64, n)
+	for j := 0; j < n; j++ {
+		for i := 0; i < n; i++ {
+			scale[j] = math.Max(scale[j], math.Abs(a[i*n+j]))
+		}
+		if scale[j] == 0 {
+			return nil, false
+		}
+		for i := 0; i < n; i++ {
+			a[i*n+j] /= scale[j]
+		}
+	}
+	for c := 0; c < n; c++ {
+		piv := c
+		for i := c + 1; i < n; i++ {
+			if math.Abs(a[i*n+c]) > math.Abs(a[piv*n+c]) {
+				piv = i
+			}
+		}
+		if math.Abs(a[piv*n+c]) < 1e-9 {
+			return nil, false
+		}
+		if piv != c {
+			for j := 0; j < n; j++ {
+				a[c*n+j], a[piv*n+j] = a[piv*n+j], a[c*n+j]
+			}
+			x[c], x[piv] = x[piv], x[c]
+		}
+		for i := c + 1; i < n; i++ {
+			f := a[i*n+c] / a[c*n+c]
+			for j := c; j < n; j++ {
+				a[i*n+j] -= f * a[c*n+j]
+			}
+			x[i] -= f * x[c]
+		}
+	}
+	for i := n - 1; i >= 0; i-- {
+		t := x[i]
+		for j := i + 1; j < n; j++ {
+			t -= a[i*n+j] * x[j]
+		}
+		x[i] = t / a[i*n+i]
+	}
+	for j := range x {
+		x[j] /= scale[j]
+	}
+	return x, true
 }
 
 // predictorOf says how a raw column is drawn.
@@ -155,7 +354,7 @@ func predictorOf(p *plan.Plan, col string) (Predictor, error) {
 	}
 	switch c := p.CategoricalOf(col); {
 	case c != nil:
-		pr.Kind, pr.Values = "levels", c.Levels
+		pr.Kind, pr.Values, pr.Categorical = "levels", c.Levels, true
 	case e != nil && e.Values != nil:
 		pr.Kind, pr.Values = "levels", e.Values
 		for _, v := range e.Values {
@@ -167,8 +366,7 @@ func predictorOf(p *plan.Plan, col string) (Predictor, error) {
 		if r := pr.Range; r != nil {
 			// The chance that a draw falls in the range; refuse a range
 			// the distribution almost never reaches.
-			z := func(x float64) float64 { return 0.5 * math.Erfc(-(x-pa.Mean)/(pa.SD*math.Sqrt2)) }
-			if z(r[1])-z(r[0]) < 0.01 {
+			if normalCDF((r[1]-pa.Mean)/pa.SD)-normalCDF((r[0]-pa.Mean)/pa.SD) < 0.01 {
 				return pr, fmt.Errorf("%s: %s: a normal distribution with mean %g and sd %g falls in the dictionary's range [%g, %g] less than 1%% of the time", p.Path, pa.Key, pa.Mean, pa.SD, r[0], r[1])
 			}
 		}
@@ -189,23 +387,14 @@ func predictorOf(p *plan.Plan, col string) (Predictor, error) {
 	return pr, nil
 }
 
+func normalCDF(z float64) float64 { return 0.5 * math.Erfc(-z/math.Sqrt2) }
+
 // draw gives one value of the predictor: its index among the levels (or
 // -1) and its number.
 func (pr *Predictor) draw(rng *rand.Rand) (int, float64) {
 	switch pr.Kind {
 	case "levels":
-		u := rng.Float64()
-		acc := 0.0
-		for i, q := range pr.Proportions {
-			acc += q
-			if u < acc || i == len(pr.Proportions)-1 {
-				x := 0.0
-				if pr.Numbers != nil {
-					x = pr.Numbers[i]
-				}
-				return i, x
-			}
-		}
+		return pr.fromUniform(rng.Float64())
 	case "normal":
 		for {
 			x := pr.Mean + pr.SD*rng.NormFloat64()
@@ -219,73 +408,291 @@ func (pr *Predictor) draw(rng *rand.Rand) (int, float64) {
 	return -1, 0
 }
 
-// row is one drawn row of predictors.
+// fromUniform gives the value at probability u of the predictor's
+// distribution (its quantile function): a level whose cumulative share
+// passes u, the normal quantile within the range, or the point u of the
+// range.
+func (pr *Predictor) fromUniform(u float64) (int, float64) {
+	switch pr.Kind {
+	case "levels":
+		acc := 0.0
+		for i, q := range pr.Proportions {
+			acc += q
+			if u < acc || i == len(pr.Proportions)-1 {
+				x := 0.0
+				if pr.Numbers != nil {
+					x = pr.Numbers[i]
+				}
+				return i, x
+			}
+		}
+	case "normal":
+		lo, hi := 0.0, 1.0
+		if r := pr.Range; r != nil {
+			lo, hi = normalCDF((r[0]-pr.Mean)/pr.SD), normalCDF((r[1]-pr.Mean)/pr.SD)
+		}
+		x := pr.Mean + pr.SD*normalQuantile(lo+u*(hi-lo))
+		if r := pr.Range; r != nil {
+			x = math.Min(math.Max(x, r[0]), r[1])
+		}
+		return -1, x
+	case "uniform":
+		return -1, pr.Range[0] + (pr.Range[1]-pr.Range[0])*u
+	}
+	return -1, 0
+}
+
+// normalQuantile is the standard normal quantile function.
+func normalQuantile(p float64) float64 { return -math.Sqrt2 * math.Erfcinv(2*p) }
+
+// row is one drawn row of the simulated columns.
 type row struct {
 	level []int
 	x     []float64
+	cat   []bool
+	z     []float64 // scratch: the copula's normal scores
 }
 
+func (s *Sim) newRow() row {
+	k := len(s.Predictors)
+	r := row{level: make([]int, k), x: make([]float64, k), cat: make([]bool, k), z: make([]float64, len(s.Correlated))}
+	for i, pr := range s.Predictors {
+		r.cat[i] = pr.Categorical
+	}
+	return r
+}
+
+// drawRow draws one row: the correlated columns from the copula (their
+// normal scores first), the others one by one.
 func (s *Sim) drawRow(rng *rand.Rand, r *row) {
+	c := len(s.Correlated)
+	for i := 0; i < c; i++ {
+		r.z[i] = rng.NormFloat64()
+	}
+	for i := c - 1; i >= 0; i-- { // z = L n, in place from the bottom
+		t := 0.0
+		for j := 0; j <= i; j++ {
+			t += s.chol[i*c+j] * r.z[j]
+		}
+		r.z[i] = t
+	}
+	next := 0
 	for k := range s.Predictors {
+		if next < c && s.Correlated[next] == k {
+			r.level[k], r.x[k] = s.Predictors[k].fromUniform(normalCDF(r.z[next]))
+			next++
+			continue
+		}
 		r.level[k], r.x[k] = s.Predictors[k].draw(rng)
 	}
 }
 
-// eta gives the linear predictor of row r at boundary m.
-func (o *Outcome) eta(r *row, m int) float64 {
-	e := 0.0
-	for k, b := range o.Slope[m] {
-		if ls, ok := o.LevelSlope[k]; ok {
-			e += ls[r.level[k]]
-			continue
-		}
-		e += b * r.x[k]
+// correlate prepares the copula of the stated correlations.
+func (s *Sim) correlate(cs []plan.Correlation) error {
+	if len(cs) == 0 {
+		return nil
 	}
-	return e
+	var cols []string
+	for k, pr := range s.Predictors {
+		for _, c := range cs {
+			if (c.A == pr.Column || c.B == pr.Column) && !slices.Contains(cols, pr.Column) {
+				cols = append(cols, pr.Column)
+				s.Correlated = append(s.Correlated, k)
+			}
+		}
+	}
+	R, _ := plan.CorrelationMatrix(cs, cols)
+	n := len(cols)
+	L := make([]float64, n*n)
+	for i := 0; i < n; i++ {
+		for j := 0; j <= i; j++ {
+			t := R[i*n+j]
+			for k := 0; k < j; k++ {
+				t -= L[i*n+k] * L[j*n+k]
+			}
+			if i == j {
+				if !(t > 0) {
+					return fmt.Errorf("%s: assumptions.correlations: the correlations of %s are not positive definite", s.Plan.Path, strings.Join(cols, ", "))
+				}
+				L[i*n+i] = math.Sqrt(t)
+			} else {
+				L[i*n+j] = t / L[j*n+j]
+			}
+		}
+	}
+	s.chol = L
+	return nil
 }
 
-// calibrate solves the cutpoints on a large seeded predictor sample and
-// checks that the cumulative probabilities never cross.
-func (s *Sim) calibrate() error {
+// calibrationSample draws the seeded sample the design constants and the
+// cutpoints are set on.
+func (s *Sim) calibrationSample() []row {
 	rng := rand.New(rand.NewPCG(s.seed, 0xca11b4a7e))
 	rows := make([]row, CalibrationRows)
 	for i := range rows {
-		rows[i] = row{level: make([]int, len(s.Predictors)), x: make([]float64, len(s.Predictors))}
+		rows[i] = s.newRow()
 		s.drawRow(rng, &rows[i])
 	}
-	for oi := range s.Outcomes {
-		o := &s.Outcomes[oi]
-		J := len(o.Proportions)
-		o.Cut = make([]float64, J-1)
-		etas := make([][]float64, J-1)
-		cum := 0.0
-		for m := 0; m < J-1; m++ {
-			cum += o.Proportions[m]
-			etas[m] = make([]float64, len(rows))
-			lo, hi := math.Inf(1), math.Inf(-1)
-			for i := range rows {
-				etas[m][i] = o.eta(&rows[i], m)
-				lo, hi = math.Min(lo, etas[m][i]), math.Max(hi, etas[m][i])
-			}
-			mean := func(c float64) float64 {
-				t := 0.0
-				for _, e := range etas[m] {
-					t += s.Link.CDF(c - e)
-				}
-				return t / float64(len(rows))
-			}
-			o.Cut[m] = solve(func(c float64) float64 { return mean(c) - cum }, lo+s.Link.Quantile(cum)-1, hi+s.Link.Quantile(cum)+1)
-		}
-		for m := 1; m < J-1; m++ {
-			for i := range rows {
-				if o.Cut[m]-etas[m][i] < o.Cut[m-1]-etas[m-1][i]-1e-12 {
-					return fmt.Errorf("%s: assumptions.outcomes.%s.nonparallel: the stated slopes make P(y <= %s) fall below P(y <= %s) for some predictor values (a negative probability of category %s): make the slopes of neighbouring boundaries closer",
+	return rows
+}
+
+// calibrate solves the cutpoints so that the category proportions over the
+// calibration sample (design matrix X, n rows) are the stated ones, and
+// checks that a cumulative model's probabilities never cross.
+func (s *Sim) calibrate(o *Outcome, X []float64, n int) error {
+	q := len(o.Proportions) - 1
+	C := len(o.Design.Columns)
+	etas := make([]float64, n*q) // row-major n x q
+	for i := 0; i < n; i++ {
+		o.eta(X[i*C:(i+1)*C], etas[i*q:(i+1)*q])
+	}
+	cum := make([]float64, q)
+	acc := 0.0
+	for m := 0; m < q; m++ {
+		acc += o.Proportions[m]
+		cum[m] = acc
+	}
+	if s.Comparison == fit.Cumulative {
+		o.Cut = s.cumulativeCuts(etas, n, cum)
+		for m := 1; m < q; m++ {
+			for i := 0; i < n; i++ {
+				if o.Cut[m]-etas[i*q+m] < o.Cut[m-1]-etas[i*q+m-1]-1e-12 {
+					return fmt.Errorf("%s: assumptions.outcomes.%s.nonparallel: the stated effects make P(y <= %s) fall below P(y <= %s) for some predictor values (a negative probability of category %s): make the effects at neighbouring boundaries closer",
 						s.Plan.Path, o.Column, o.Categories[m], o.Categories[m-1], o.Categories[m])
 				}
 			}
 		}
+		return nil
 	}
+	cut, err := s.newtonCuts(etas, n, cum)
+	if err != nil {
+		return fmt.Errorf("%s: assumptions.outcomes.%s: %v", s.Plan.Path, o.Column, err)
+	}
+	o.Cut = cut
 	return nil
+}
+
+// cumulativeCuts solves each cutpoint of a cumulative model on its own:
+// the mean of F(tau_m - eta_m) is the stated P(y <= m).
+func (s *Sim) cumulativeCuts(etas []float64, n int, cum []float64) []float64 {
+	q := len(cum)
+	cut := make([]float64, q)
+	for m := 0; m < q; m++ {
+		lo, hi := math.Inf(1), math.Inf(-1)
+		for i := 0; i < n; i++ {
+			lo, hi = math.Min(lo, etas[i*q+m]), math.Max(hi, etas[i*q+m])
+		}
+		mean := func(c float64) float64 {
+			t := 0.0
+			for i := 0; i < n; i++ {
+				t += s.Link.CDF(c - etas[i*q+m])
+			}
+			return t / float64(n)
+		}
+		cut[m] = solve(func(c float64) float64 { return mean(c) - cum[m] }, lo+s.Link.Quantile(cum[m])-1, hi+s.Link.Quantile(cum[m])+1)
+	}
+	return cut
+}
+
+// cumShares gives the mean over the sample of P(y <= m), m = 1..J-1, at
+// cutpoints cut.
+func (s *Sim) cumShares(etas []float64, n int, cut []float64) []float64 {
+	q := len(cut)
+	L, p := make([]float64, q), make([]float64, q+1)
+	out := make([]float64, q)
+	for i := 0; i < n; i++ {
+		for m := 0; m < q; m++ {
+			L[m] = cut[m] - etas[i*q+m]
+		}
+		fit.CategoryProbabilities(s.Comparison, s.Backward, s.Link, L, p)
+		acc := 0.0
+		for m := 0; m < q; m++ {
+			acc += p[m]
+			out[m] += acc
+		}
+	}
+	for m := range out {
+		out[m] /= float64(n)
+	}
+	return out
+}
+
+// newtonCuts solves the cutpoints of a stage or adjacent model, where each
+// share depends on several cutpoints, by Newton's method on the J-1 shares
+// P(y <= m) (a difference Jacobian, steps halved while the largest miss
+// does not fall). Each share increases with its own cutpoint.
+func (s *Sim) newtonCuts(etas []float64, n int, cum []float64) ([]float64, error) {
+	q := len(cum)
+	// Start: the cutpoints that give the proportions at eta = its mean.
+	cut := make([]float64, q)
+	prev := 0.0
+	for m := 0; m < q; m++ {
+		pm := cum[m] - prev
+		next := 1 - cum[m]
+		if m+1 < q {
+			next = cum[m+1] - cum[m]
+		}
+		var f float64
+		switch {
+		case s.Comparison == fit.Adjacent:
+			f = pm / (pm + next)
+		case s.Backward:
+			f = cum[m] / (cum[m] + next)
+		default:
+			f = pm / (1 - prev)
+		}
+		mean := 0.0
+		for i := 0; i < n; i++ {
+			mean += etas[i*q+m]
+		}
+		cut[m] = s.Link.Quantile(f) + mean/float64(n)
+		prev = cum[m]
+	}
+	miss := func(c []float64) ([]float64, float64) {
+		sh := s.cumShares(etas, n, c)
+		worst := 0.0
+		for m := range sh {
+			sh[m] -= cum[m]
+			worst = math.Max(worst, math.Abs(sh[m]))
+		}
+		return sh, worst
+	}
+	r, worst := miss(cut)
+	for it := 0; it < 100 && worst > 1e-12; it++ {
+		const h = 1e-6
+		Jac := make([]float64, q*q)
+		for l := 0; l < q; l++ {
+			c := slices.Clone(cut)
+			c[l] += h
+			rl, _ := miss(c)
+			for m := 0; m < q; m++ {
+				Jac[m*q+l] = (rl[m] - r[m]) / h
+			}
+		}
+		step, ok := solveSquare(Jac, r)
+		if !ok {
+			return nil, fmt.Errorf("the cutpoints that give the stated proportions cannot be found (the effects are too large for them)")
+		}
+		t := 1.0
+		for ; t > 1e-6; t /= 2 {
+			c := slices.Clone(cut)
+			for m := range c {
+				c[m] -= t * step[m]
+			}
+			rc, wc := miss(c)
+			if wc < worst {
+				cut, r, worst = c, rc, wc
+				break
+			}
+		}
+		if t <= 1e-6 {
+			break
+		}
+	}
+	if worst > 1e-9 {
+		return nil, fmt.Errorf("the cutpoints that give the stated proportions cannot be found (the closest miss a share by %.2g; the effects may be too large for them)", worst)
+	}
+	return cut, nil
 }
 
 // solve finds the root of the increasing function g in [a, b] by the
@@ -357,18 +764,34 @@ func (s *Sim) Write(w io.Writer, n int, replicate uint64) error {
 		bw.WriteString(csvCell(c))
 	}
 	bw.WriteByte('\n')
-	r := row{level: make([]int, len(s.Predictors)), x: make([]float64, len(s.Predictors))}
+	r := s.newRow()
+	type scratch struct{ raw, x, e, L, p []float64 }
+	sc := make([]scratch, len(s.Outcomes))
+	for oi, o := range s.Outcomes {
+		q := len(o.Proportions) - 1
+		sc[oi] = scratch{make([]float64, len(o.Sources)), make([]float64, len(o.Design.Columns)), make([]float64, q), make([]float64, q), make([]float64, q+1)}
+	}
 	cells := make([]string, 0, len(h))
 	for i := 0; i < n; i++ {
 		s.drawRow(rng, &r)
 		cells = cells[:0]
 		for oi := range s.Outcomes {
-			o := &s.Outcomes[oi]
+			o, c := &s.Outcomes[oi], &sc[oi]
+			o.raw(&r, c.raw)
+			if err := o.Design.Row(c.raw, c.x); err != nil {
+				return fmt.Errorf("%s: simulated row %d: %v", s.Plan.Path, i+1, err)
+			}
+			o.eta(c.x, c.e)
+			for m := range c.L {
+				c.L[m] = o.Cut[m] - c.e[m]
+			}
+			fit.CategoryProbabilities(s.Comparison, s.Backward, s.Link, c.L, c.p)
 			u := rng.Float64()
-			y := len(o.Proportions) - 1
-			for m := range o.Cut {
-				if u < s.Link.CDF(o.Cut[m]-o.eta(&r, m)) {
-					y = m
+			y, acc := len(c.p)-1, 0.0
+			for j := 0; j < len(c.p)-1; j++ {
+				acc += c.p[j]
+				if u < acc {
+					y = j
 					break
 				}
 			}

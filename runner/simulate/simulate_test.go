@@ -118,7 +118,7 @@ func TestSimulationIsSeeded(t *testing.T) {
 func TestCrossingSlopesRefused(t *testing.T) {
 	src := strings.Replace(recoverPlan, "[0.2, 0.5, 0.9]", "[3, -3, 3]", 1)
 	_, err := New(parsePlan(t, src))
-	if err == nil || !strings.Contains(err.Error(), "assumptions.outcomes.y.nonparallel: the stated slopes make P(y <= mid) fall below P(y <= low)") {
+	if err == nil || !strings.Contains(err.Error(), "assumptions.outcomes.y.nonparallel: the stated effects make P(y <= mid) fall below P(y <= low)") {
 		t.Fatalf("got %v", err)
 	}
 }
