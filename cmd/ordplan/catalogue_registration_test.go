@@ -29,6 +29,12 @@ func freezeAs(t *testing.T, dir, id, src string) string {
 	return lp
 }
 
+// assumed is an assumptions section for goodPlan's outcome (three
+// categories) with the given effects and further top-level lines.
+func assumed(effects, more string) string {
+	return "assumptions:\n  predictors: {a: {mean: 0, sd: 1}, b: {mean: 0, sd: 1}}\n  outcomes:\n    y:\n      proportions: [0.3, 0.4, 0.3]\n      effects: " + effects + "\n" + more
+}
+
 // registrationItems are the catalogue items of freezing and deviations.
 func registrationItems() []badInput {
 	changed := edit("{by: aic}", "{by: bic}")
@@ -94,6 +100,30 @@ func registrationItems() []badInput {
 		{id: "A5", name: "a predictor the simulation cannot draw", args: []string{"rehearse"}, code: 1,
 			plan: goodPlan + "assumptions:\n  outcomes:\n    y: {proportions: [0.3, 0.4, 0.3]}\n",
 			want: []string{`assumptions.predictors: say how to draw "a": mean and sd, or give it a range or values in the dictionary`}},
+		{id: "A6", name: "an effect for a design column that does not exist", args: []string{"check", "--no-data"}, code: 1, lines: true,
+			plan: edit("[a, b]", "[a, b, {interact: [a, b]}]") + "categorical:\n  b: {levels: [u, v, w]}\n" + strings.Replace(assumed("{a&b: {a&b.x: 0.2}}", ""), "b: {mean: 0, sd: 1}", "b: {proportions: [0.3, 0.3, 0.4]}", 1),
+			want: []string{`assumptions.outcomes.y.effects.a&b.a&b.x: "a&b.x" is not a design column of "a&b" (a&b.v, a&b.w)`}},
+		{id: "A7", name: "correlations that are not positive definite", args: []string{"check", "--no-data"}, code: 1, lines: true,
+			plan: edit("[a, b]", "[a, b, c]") + assumed("{a: 0.2}", "  correlations:\n    - {between: [a, b], r: 0.9}\n    - {between: [b, c], r: 0.9}\n    - {between: [a, c], r: -0.9}\n"),
+			want: []string{`assumptions.correlations: the correlations of a, b, c are not positive definite: no set of variables can have them all (smallest eigenvalue -0.8)`}},
+		{id: "A8", name: "a correlation of 1 or more", args: []string{"rehearse"}, code: 1, lines: true,
+			plan: goodPlan + assumed("{a: 0.2}", "  correlations:\n    - {between: [a, b], r: 1}\n"),
+			want: []string{`assumptions.correlations[0].r: a correlation must be above -1 and below 1, got 1`}},
+		{id: "A9", name: "a correlation naming a column the plan does not read", args: []string{"power", "--n", "100"}, code: 1, lines: true,
+			plan: goodPlan + assumed("{a: 0.2}", "  correlations:\n    - {between: [a, q], r: 0.3}\n"),
+			want: []string{`assumptions.correlations[0].between: "q" is not a column the predictors or the subset read (columns: a, b)`}},
+		{id: "A10", name: "an unknown word for the generating model", args: []string{"check", "--no-data"}, code: 1, lines: true,
+			plan: goodPlan + assumed("{a: 0.2}", "  comparison: ordinal\n"),
+			want: []string{`assumptions.comparison: unknown comparison "ordinal" (want cumulative, stage or adjacent)`}},
+		{id: "A11", name: "one slope for a term with several design columns", args: []string{"check", "--no-data"}, code: 1, lines: true,
+			plan: edit("[a, b]", "[b, {name: as, column: a, spline: {knots: [-1, 0, 1]}}]") + assumed("{as: 0.3}", ""),
+			want: []string{`assumptions.outcomes.y.effects.as: "as" has 2 design columns (as.1, as.2): give its values at points, {at: [...], values: [...]}, or a slope per design column`}},
+		{id: "A12", name: "points that do not determine a spline's curve", args: []string{"rehearse"}, code: 1, lines: true,
+			plan: edit("[a, b]", "[b, {name: as, column: a, spline: {knots: [-1, 0, 1]}}]") + assumed("{as: {at: [2, 3, 4], values: [0, 0.2, 0.4]}}", ""),
+			want: []string{`A12.yaml:19: assumptions.outcomes.y.effects.as: the points [2, 3, 4] do not determine the curve of as's 2 design columns (as.1, as.2): spread them over the range the columns bend in (knots at [-1, 0, 1] on the transformed scale)`}},
+		{id: "A13", name: "a direction for a generating model that is not stage", args: []string{"check", "--no-data"}, code: 1, lines: true,
+			plan: goodPlan + assumed("{a: 0.2}", "  direction: backward\n"),
+			want: []string{`assumptions.direction: the direction applies to the stage comparison only (assumptions.comparison is "cumulative")`}},
 		{id: "R5", name: "ordplan init over an existing file", args: []string{"init", "--header", "y,a"}, plan: goodPlan, code: 1,
 			want: []string{"init: R5.yaml already exists; ordplan init never overwrites a file"},
 			check: func(t *testing.T, dir, out, errs string) {
