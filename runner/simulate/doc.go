@@ -2,21 +2,31 @@
 // dictionary, for `ordplan rehearse` (one data set, the whole plan run on
 // it) and `ordplan power` (many, at several sample sizes).
 //
-// Predictors are drawn independently of each other: a categorical column
-// over its levels and a numeric column over its dictionary values with the
-// stated proportions (equal by default); a numeric column with a mean and
-// standard deviation from a normal distribution, redrawn until it falls in
-// the dictionary's range; a numeric column with only a range uniformly on
-// it. Weights are 1, the offset 0, and cluster ids number consecutive
-// groups of ten rows (with no cluster effect).
+// Raw columns: the predictors' columns and the columns the subset reads.
+// A categorical column is drawn over its levels and a numeric column over
+// its dictionary values with the stated proportions (equal by default); a
+// numeric column with a mean and standard deviation from a normal
+// distribution, within the dictionary's range; a numeric column with only
+// a range uniformly on it. Columns with stated correlations are drawn
+// together through a Gaussian copula: correlated standard normal scores
+// (the Cholesky factor of the stated matrix) turned into each column's own
+// distribution by its quantile function; the others independently.
+// Weights are 1, the offset 0, and cluster ids number consecutive groups
+// of ten rows (with no cluster effect).
 //
-// Each outcome follows a cumulative model: P(y <= m | x) = F(tau_m - eta_m)
-// with eta_m the sum of the stated slopes times the predictors (a slope per
-// boundary for a nonparallel term, a slope per level against the reference
-// for a categorical column). The cutpoints are solved, by bisection, so
-// that the category proportions averaged over a large seeded sample of the
-// predictors (the calibration sample) are the stated ones; positive slopes
-// move the outcome towards higher categories.
+// Outcomes: the raw columns become design columns through runner/design,
+// the same path as real data, its data-determined constants (means, SDs,
+// quantile knots, orthogonal polynomials) frozen on a large seeded sample
+// of the predictors (the calibration sample). The stated effects become
+// coefficients of the design columns (levels against the reference solved
+// through the coding, values at points through the term's columns), and
+// each outcome follows the stated comparison (cumulative, stage forward or
+// backward, adjacent) and link with L_m = tau_m - x'b_m, the category
+// probabilities computed as a fit computes them. The cutpoints are solved
+// so that the category proportions averaged over the calibration sample
+// are the stated ones (one at a time for cumulative models, by Newton's
+// method for the others); positive coefficients move the outcome towards
+// higher categories. The subset is applied by the ordinary reader.
 //
 // Everything is seeded: the same plan, sample size and replicate number give
 // the same bytes.

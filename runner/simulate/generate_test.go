@@ -304,3 +304,63 @@ func TestCorrelationsRecovered(t *testing.T) {
 		t.Fatalf("%v %v", err, s2.Correlated)
 	}
 }
+
+const subsetPlan = `version: 1
+seed: 5150
+data: {file: sim.csv}
+outcomes:
+  - column: y
+    categories: [a, b, c]
+predictors: [x]
+subset:
+  - {column: age, at_least: 30}
+dictionary:
+  x: {values: [0, 1]}
+  age: {label: Age, unit: years}
+models: {approaches: [cumulative], effects: [parallel]}
+tests: {parallel_lines: [lr]}
+rules:
+  - choose: {by: aic}
+assumptions:
+  predictors:
+    age: {mean: 40, sd: 15}
+  correlations:
+    - {between: [x, age], r: 0.5}
+  outcomes:
+    y: {proportions: [0.3, 0.4, 0.3], effects: {x: 0.5}}
+`
+
+// A plan with a subset: the column the subset reads (not a predictor) is
+// simulated, and the ordinary reader applies the condition to the
+// simulated rows: it keeps P(age >= 30) = 1 - Phi(-2/3) = 0.7475 of
+// them, within 4 binomial standard errors.
+func TestSubsetAppliedToSimulatedRows(t *testing.T) {
+	p := parsePlan(t, subsetPlan)
+	sim, err := New(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	const n = 4000
+	var buf bytes.Buffer
+	if err := sim.Write(&buf, n, 0); err != nil {
+		t.Fatal(err)
+	}
+	q := *p
+	q.Data.Path = filepath.Join(t.TempDir(), "sim.csv")
+	if err := os.WriteFile(q.Data.Path, buf.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	res, err := runner.Run(&q, runner.Options{Workers: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	ds := res.Outcomes[0].Data
+	want := 1 - normalCDF(-2.0/3)
+	got := float64(ds.RowsRead-ds.RowsOutside) / n
+	if ds.RowsRead != n || math.Abs(got-want) > 4*math.Sqrt(want*(1-want)/n) {
+		t.Errorf("kept %d of %d rows (%.4f), want about %.4f", ds.RowsRead-ds.RowsOutside, ds.RowsRead, got, want)
+	}
+	if ds.N != ds.RowsRead-ds.RowsOutside {
+		t.Errorf("used %d rows, kept %d", ds.N, ds.RowsRead-ds.RowsOutside)
+	}
+}
