@@ -97,21 +97,21 @@ type OutcomePower struct {
 
 // PowerResult is a whole power study.
 type PowerResult struct {
-	Simulated  bool           `json:"simulated_data"` // always true: no real observation is used
-	PlanFile   string         `json:"plan"`
-	PlanSHA256 string         `json:"plan_sha256"`
-	Title      string         `json:"title"`
-	Seed       uint64         `json:"seed"`
-	Link       string         `json:"link"`
-	Generator  string         `json:"generating_model"` // comparison (direction) and link, e.g. "cumulative logit"
+	Simulated  bool   `json:"simulated_data"` // always true: no real observation is used
+	PlanFile   string `json:"plan"`
+	PlanSHA256 string `json:"plan_sha256"`
+	Title      string `json:"title"`
+	Seed       uint64 `json:"seed"`
+	Link       string `json:"link"`
+	Generator  string `json:"generating_model"` // comparison (direction) and link, e.g. "cumulative logit"
 	// Correlations stated between predictor columns ("a, b: r = 0.3"); the
 	// other columns are drawn independently.
-	Correlations []string `json:"correlations,omitempty"`
-	Replicates int            `json:"replicates"`
-	Alpha      float64        `json:"alpha"`
-	Sizes      []int          `json:"sizes"`
-	Outcomes   []OutcomePower `json:"outcomes"`
-	Version    string         `json:"version"`
+	Correlations []string       `json:"correlations,omitempty"`
+	Replicates   int            `json:"replicates"`
+	Alpha        float64        `json:"alpha"`
+	Sizes        []int          `json:"sizes"`
+	Outcomes     []OutcomePower `json:"outcomes"`
+	Version      string         `json:"version"`
 }
 
 // replicate is what one run gave, per outcome.
