@@ -101,15 +101,19 @@ func (t TestPair) String() string {
 
 // TestPairs lists every comparison a test rule makes in the plan, in grid
 // order.
-func (p *Plan) TestPairs(r Rule) []TestPair {
+func (p *Plan) TestPairs(r Rule) []TestPair { return p.Models.TestPairs(r) }
+
+// TestPairs lists every comparison a test rule makes in the grid of these
+// models, in grid order.
+func (m Models) TestPairs(r Rule) []TestPair {
 	var out []TestPair
-	for _, a := range p.Models.Approaches {
-		for _, l := range p.Models.Links {
-			for _, e := range p.Models.Effects {
-				if !p.Models.EffectsFitted(a, e) {
+	for _, a := range m.Approaches {
+		for _, l := range m.Links {
+			for _, e := range m.Effects {
+				if !m.EffectsFitted(a, e) {
 					continue
 				}
-				for _, t := range r.TestTargets(p.Models, a, e) {
+				for _, t := range r.TestTargets(m, a, e) {
 					out = append(out, TestPair{a, l, e, t})
 				}
 			}

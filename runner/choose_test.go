@@ -73,7 +73,7 @@ func TestChooseAndTieBreak(t *testing.T) {
 		t.Run(c.name, func(t *testing.T) {
 			or := &OutcomeResult{}
 			ro := &RuleOutcome{}
-			newRuleEnv(&plan.Plan{}, or).choose(plan.Rule{Kind: plan.RuleChoose, By: c.by, Margin: c.margin, Line: 7, Otherwise: plan.OtherwiseStop}, c.fits, ro)
+			newRuleEnv(ResolvePlan(&plan.Plan{}), or).choose(plan.Rule{Kind: plan.RuleChoose, By: c.by, Margin: c.margin, Line: 7, Otherwise: plan.OtherwiseStop}, c.fits, ro)
 			if c.chosen == "" {
 				if or.Chosen != nil || !strings.Contains(or.Choice, c.reason) {
 					t.Fatalf("chose %v (%q), want none (%q)", or.Chosen, or.Choice, c.reason)

@@ -249,7 +249,8 @@ func meanRows(shape [][]float64, perSet [][]*FitEntry, i int, get func(*fit.Resu
 // pooledTestBlock is testBlock on imputed data: likelihood-ratio tests
 // pooled by D3, Wald and Brant tests by D1, score and Wolfe-Gould tests by
 // D2 (pooledtests.go).
-func pooledTestBlock(p *plan.Plan, or *OutcomeResult, perSet [][]*FitEntry, approach fit.Comparison, link fit.Link, fopt fit.Options) *TestBlock {
+func pooledTestBlock(an *Analysis, or *OutcomeResult, perSet [][]*FitEntry, approach fit.Comparison, link fit.Link) *TestBlock {
+	fopt := an.Fit
 	tb := &TestBlock{Approach: approach, Link: link}
 	cell := func(s fit.Structure) *FitEntry { return or.Cell(approach, s, link) }
 	par, np := cell(fit.ParallelEffects), cell(fit.NonparallelEffects)
@@ -267,7 +268,7 @@ func pooledTestBlock(p *plan.Plan, or *OutcomeResult, perSet [][]*FitEntry, appr
 		return pooledScore(or, par, m)
 	}
 	cumLogit := approach == fit.Cumulative && link == fit.Logit
-	for _, kind := range p.Tests.ParallelLines {
+	for _, kind := range an.Tests.ParallelLines {
 		switch kind {
 		case fit.TestLR:
 			tb.Global = append(tb.Global, lr(par, np))
@@ -287,7 +288,7 @@ func pooledTestBlock(p *plan.Plan, or *OutcomeResult, perSet [][]*FitEntry, appr
 	}
 	for _, term := range or.Terms {
 		vt := VarTests{Predictor: term.Name}
-		for _, kind := range p.Tests.ParallelLines {
+		for _, kind := range an.Tests.ParallelLines {
 			switch kind {
 			case fit.TestBrant:
 				if cumLogit {
@@ -399,12 +400,12 @@ func fTest(kind fit.TestKind, t impute.FTest, llr, llf float64) fit.Test {
 // runImputedOutcome analyses one outcome on multiply imputed data: the
 // grid is fitted on every imputed set and pooled, the tests are pooled
 // (D3, D1), and the rules run on the pooled fits.
-func runImputedOutcome(p *plan.Plan, a *Analysis, r Reading, oc plan.Outcome, opt Options) (*OutcomeResult, error) {
+func runImputedOutcome(p *plan.Plan, an *Analysis, r Reading, oc plan.Outcome, opt Options) (*OutcomeResult, error) {
 	if opt.Executor != nil {
 		return nil, fmt.Errorf("%s: data.imputed: plans on imputed data run on this machine only; run without --queue", p.Path)
 	}
 	// The original file: its missing values are described in the report.
-	orig, err := data.Load(a.DataPath, r.Options)
+	orig, err := data.Load(an.DataPath, r.Options)
 	if err != nil {
 		return nil, fmt.Errorf("%s (plan %s, outcome %q)", err, p.Path, oc.Column)
 	}
@@ -421,24 +422,24 @@ func runImputedOutcome(p *plan.Plan, a *Analysis, r Reading, oc plan.Outcome, op
 			return nil, fmt.Errorf("%s: outcome %q, imputed set %d: %v", p.Path, oc.Column, k+1, err)
 		}
 	}
-	fopt := a.Fit
-	backward := p.Models.Backward()
-	or.FreeSets, _ = freeSets(p, or.Terms, or.FitData, backward, fopt, opt.Workers)
-	jobs, notes := gridJobs(p, or.Terms, or.FreeSets, backward)
+	fopt := an.Fit
+	backward := an.Models.Backward()
+	or.FreeSets, _ = freeSets(an, or.Terms, or.FitData, backward, fopt, opt.Workers)
+	jobs, notes := gridJobs(an, or.Terms, or.FreeSets, backward)
 	or.Notes = append(or.Notes, notes...)
-	perSet := poolJobs(a, sets, jobs, run, opt, oc.Column)
+	perSet := poolJobs(an, sets, jobs, run, opt, oc.Column)
 	or.Fits = jobs
 	run.Fits = perSet
-	for _, a := range p.Models.Approaches {
-		for _, l := range p.Models.Links {
-			or.Tests = append(or.Tests, pooledTestBlock(p, or, perSet, a, l, fopt))
+	for _, a := range an.Models.Approaches {
+		for _, l := range an.Models.Links {
+			or.Tests = append(or.Tests, pooledTestBlock(an, or, perSet, a, l))
 		}
 	}
-	applyRules(p, or)
-	for _, h := range p.Inference.Hypotheses {
+	applyRules(an, or)
+	for _, h := range an.Inference.Hypotheses {
 		or.Hypotheses = append(or.Hypotheses, hypothesisTests(h, or)...)
 	}
-	if err := runPooledInference(p, or); err != nil {
+	if err := runPooledInference(an, or); err != nil {
 		return nil, err
 	}
 	or.Notes = append(or.Notes, fmt.Sprintf("Analysed on %d imputed data sets, pooled by Rubin's rules; log-likelihoods, AIC and BIC are means over the sets, and rules on AIC or BIC compare those means; the plan's hypotheses are pooled Wald tests (D1); marginal effects and predictions are computed on each set and pooled by Rubin's rules", run.M),

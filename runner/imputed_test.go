@@ -249,7 +249,7 @@ func TestImputedDifferentSets(t *testing.T) {
 	for e, me := range avg.Effects {
 		var mean, w, b float64
 		for k, r := range fits {
-			s := marginalSet(p, or.onSet(k), r, "average").Effects[e]
+			s := marginalSet(ResolvePlan(p), or.onSet(k), r, "average").Effects[e]
 			q[k], u[k] = s.Effect, s.SE*s.SE
 			mean += s.Effect / 5
 			w += s.SE * s.SE / 5

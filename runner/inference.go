@@ -54,8 +54,8 @@ type NewRows struct {
 }
 
 // runInference computes what the plan's inference section asks for.
-func runInference(p *plan.Plan, or *OutcomeResult) error {
-	inf := p.Inference
+func runInference(an *Analysis, or *OutcomeResult) error {
+	inf := an.Inference
 	for _, h := range inf.Hypotheses {
 		or.Hypotheses = append(or.Hypotheses, hypothesisTests(h, or)...)
 	}
@@ -64,10 +64,10 @@ func runInference(p *plan.Plan, or *OutcomeResult) error {
 	}
 	res := or.Chosen.Result
 	for _, kind := range inf.MarginalEffects {
-		or.Marginal = append(or.Marginal, marginalSet(p, or, res, kind))
+		or.Marginal = append(or.Marginal, marginalSet(an, or, res, kind))
 	}
 	if inf.PredictPath != "" {
-		nr, err := readNewRows(p, or)
+		nr, err := readNewRows(an, or)
 		if err != nil {
 			return err
 		}
@@ -81,15 +81,15 @@ func runInference(p *plan.Plan, or *OutcomeResult) error {
 
 // marginalSet computes one kind of marginal effects (average, means,
 // profile) of fit res on the outcome's data.
-func marginalSet(p *plan.Plan, or *OutcomeResult, res *fit.Result, kind string) MarginalSet {
-	level := p.Report.ConfidenceLevel
+func marginalSet(an *Analysis, or *OutcomeResult, res *fit.Result, kind string) MarginalSet {
+	level := an.Level
 	set := MarginalSet{Kind: kind}
 	var err error
 	switch kind {
 	case "average":
 		set.Effects, set.Notes, err = sourceEffects(or, res, or.Data.X, or.Data.N, or.Data.Offset, or.Data.Weights, level)
 	default:
-		raw := or.representative(p.Inference.Profile, kind == "profile")
+		raw := or.representative(an.Inference.Profile, kind == "profile")
 		set.Point = raw
 		set.PointLevels = or.levelsAt(raw)
 		var off []float64
@@ -106,8 +106,8 @@ func marginalSet(p *plan.Plan, or *OutcomeResult, res *fit.Result, kind string) 
 
 // readNewRows reads the plan's new rows and makes their design with the
 // constants frozen from the fitted data.
-func readNewRows(p *plan.Plan, or *OutcomeResult) (*NewRows, error) {
-	inf := p.Inference
+func readNewRows(an *Analysis, or *OutcomeResult) (*NewRows, error) {
+	inf, dopt := an.Inference, or.dataOptions
 	nr := &NewRows{File: inf.Predict}
 	sources := make([]string, len(or.Design.Sources))
 	levels := map[string][]string{}
@@ -117,14 +117,14 @@ func readNewRows(p *plan.Plan, or *OutcomeResult) (*NewRows, error) {
 			levels[s.Name] = s.Cat.Levels
 		}
 	}
-	rows, err := data.LoadRowsMissing(inf.PredictPath, sources, levels, p.Data.Offset, p.Data.MissingValues, columnMissing(p), p.Data.Dialect())
+	rows, err := data.LoadRowsMissing(inf.PredictPath, sources, levels, dopt.Offset, dopt.MissingTokens, dopt.ColumnMissing, dopt.Dialect)
 	if err != nil {
-		return nil, fmt.Errorf("%s: inference.predict: %v", p.Path, err)
+		return nil, fmt.Errorf("%s: inference.predict: %v", an.Source, err)
 	}
 	nr.Rows = rows
 	X, i, err := or.Design.Matrix(rows.X, rows.N)
 	if err != nil {
-		return nil, fmt.Errorf("%s: inference.predict: %s:%d: %v", p.Path, rows.File, rows.Lines[i], err)
+		return nil, fmt.Errorf("%s: inference.predict: %s:%d: %v", an.Source, rows.File, rows.Lines[i], err)
 	}
 	nr.Design = X
 	return nr, nil

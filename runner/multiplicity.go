@@ -56,9 +56,9 @@ func sortedIndex(p []float64) []int {
 // multiplicity. The family is every hypothesis of every outcome, tested
 // in that outcome's chosen model; tests in the other candidates are
 // descriptive and keep their raw p-values only.
-func adjustHypotheses(p *plan.Plan, res *Result) {
-	method := p.Inference.Multiplicity
-	if method == "" || method == plan.MultiplicityNone || len(p.Inference.Hypotheses) == 0 {
+func adjustHypotheses(an *Analysis, res *Result) {
+	method := an.Inference.Multiplicity
+	if method == "" || method == plan.MultiplicityNone || len(an.Inference.Hypotheses) == 0 {
 		return
 	}
 	type ref struct{ or, h int }

@@ -74,7 +74,7 @@ func TestAdjustHypothesesFamily(t *testing.T) {
 	c := &OutcomeResult{Hypotheses: []HypothesisResult{{Text: "h1", Model: "m1", Test: ok(0.0001)}}}
 	p := &plan.Plan{Inference: plan.Inference{Hypotheses: []plan.Hypothesis{{Text: "h1"}}, Multiplicity: plan.MultiplicityHolm}}
 	res := &Result{Plan: p, Outcomes: []*OutcomeResult{a, b, c}}
-	adjustHypotheses(p, res)
+	adjustHypotheses(ResolvePlan(p), res)
 	// Family {0.01, 0.04, 0.03}: Holm gives 0.03, 0.06, 0.06.
 	want := map[*HypothesisResult]float64{&a.Hypotheses[0]: 0.03, &a.Hypotheses[2]: 0.06, &b.Hypotheses[0]: 0.06}
 	for h, w := range want {

@@ -5,7 +5,6 @@ import (
 	"math"
 	"slices"
 
-	"ordplan/plan"
 	"ordplan/runner/fit"
 	"ordplan/runner/impute"
 )
@@ -59,11 +58,11 @@ func (or *OutcomeResult) chosenPerSet() ([]*fit.Result, error) {
 
 // runPooledInference computes the marginal effects and the predictions
 // for new rows the plan asks for on every imputed set and pools them.
-func runPooledInference(p *plan.Plan, or *OutcomeResult) error {
+func runPooledInference(an *Analysis, or *OutcomeResult) error {
 	if or.Chosen == nil {
 		return nil
 	}
-	inf := p.Inference
+	inf := an.Inference
 	fits, ferr := or.chosenPerSet()
 	var dfc float64
 	if ferr == nil {
@@ -76,14 +75,14 @@ func runPooledInference(p *plan.Plan, or *OutcomeResult) error {
 		}
 		sets := make([]MarginalSet, len(fits))
 		for k, r := range fits {
-			sets[k] = marginalSet(p, or.onSet(k), r, kind)
+			sets[k] = marginalSet(an, or.onSet(k), r, kind)
 		}
-		or.Marginal = append(or.Marginal, poolMarginal(sets, dfc, p.Report.ConfidenceLevel))
+		or.Marginal = append(or.Marginal, poolMarginal(sets, dfc, an.Level))
 	}
 	if inf.PredictPath == "" {
 		return nil
 	}
-	nr, err := readNewRows(p, or)
+	nr, err := readNewRows(an, or)
 	if err != nil {
 		return err
 	}

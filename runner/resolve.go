@@ -27,6 +27,16 @@ type Analysis struct {
 	// expected information) and the workers of one fit.
 	Fit    fit.Options
 	Errors CovariancePolicy
+
+	// What a plan asks beyond fitting (zero for the flags of `ordplan
+	// fit`): the grid of models, the parallel-lines tests, the rules in
+	// order, the inference section (its new rows read like the data), the
+	// confidence level of intervals.
+	Models    plan.Models
+	Tests     plan.Tests
+	Rules     []plan.Rule
+	Inference plan.Inference
+	Level     float64
 }
 
 // Reading says how to read the data of one outcome and build its design.
@@ -111,7 +121,8 @@ func (r *Result) Errors() CovariancePolicy {
 // ResolvePlan resolves a validated plan.
 func ResolvePlan(p *plan.Plan) *Analysis {
 	a := &Analysis{Source: p.Path, Plan: true, DataFile: p.Data.File, DataPath: p.Data.Path,
-		Errors: covariancePolicy(p.Covariance, p.Data.Sampling())}
+		Errors: covariancePolicy(p.Covariance, p.Data.Sampling()),
+		Models: p.Models, Tests: p.Tests, Rules: p.Rules, Inference: p.Inference, Level: p.Report.ConfidenceLevel}
 	a.Fit = a.Errors.fitOptions(1) // the grid runs its fits in parallel
 	for _, oc := range p.Outcomes {
 		spec := p.DesignSpec(oc)
@@ -136,6 +147,11 @@ func ResolvePlan(p *plan.Plan) *Analysis {
 		a.Outcomes = append(a.Outcomes, r)
 	}
 	return a
+}
+
+// Weighted reports whether the rows carry weights (frequency or sampling).
+func (a *Analysis) Weighted() bool {
+	return len(a.Outcomes) > 0 && a.Outcomes[0].Options.Weights != ""
 }
 
 // readColumns lists the columns data options read, subset columns

@@ -18,7 +18,7 @@ import (
 // labels of a column. The run fills it from the data; tests over hand-made
 // results replace the functions.
 type ruleEnv struct {
-	p  *plan.Plan
+	an *Analysis
 	or *OutcomeResult
 	// probs gives a fit's category probabilities (n x J) at rows X
 	// (n x K) with offsets off (nil: none).
@@ -37,11 +37,11 @@ type ruleEnv struct {
 	ticCache  map[*FitEntry][3]float64
 }
 
-func newRuleEnv(p *plan.Plan, or *OutcomeResult) *ruleEnv {
-	env := &ruleEnv{p: p, or: or, probCache: map[string][]float64{}, ticCache: map[*FitEntry][3]float64{}}
+func newRuleEnv(an *Analysis, or *OutcomeResult) *ruleEnv {
+	env := &ruleEnv{an: an, or: or, probCache: map[string][]float64{}, ticCache: map[*FitEntry][3]float64{}}
 	env.probs = func(f *FitEntry, X, off []float64) ([]float64, error) { return f.Result.Probabilities(X, off) }
 	env.tic = func(f *FitEntry) (float64, float64, error) {
-		return fit.TIC(or.FitData, f.Result, p.Data.Sampling())
+		return fit.TIC(or.FitData, f.Result, an.Errors.Sampling)
 	}
 	var brant *fit.BrantResult
 	env.test = func(kind fit.TestKind, f, full *FitEntry) fit.Test {
@@ -49,7 +49,7 @@ func newRuleEnv(p *plan.Plan, or *OutcomeResult) *ruleEnv {
 			return pooledPairTest(or, kind, f, full)
 		}
 		if kind == fit.TestBrant && brant == nil {
-			brant = fit.Brant(or.FitData, fit.Options{Workers: 1})
+			brant = fit.Brant(or.FitData, an.Fit)
 		}
 		return pairTest(kind, or.FitData, brant, f, full)
 	}
@@ -58,7 +58,7 @@ func newRuleEnv(p *plan.Plan, or *OutcomeResult) *ruleEnv {
 }
 
 // applyRules runs the plan's rules in order over the candidate fits.
-func applyRules(p *plan.Plan, or *OutcomeResult) { newRuleEnv(p, or).apply() }
+func applyRules(an *Analysis, or *OutcomeResult) { newRuleEnv(an, or).apply() }
 
 func (env *ruleEnv) apply() {
 	or := env.or
@@ -75,8 +75,8 @@ func (env *ruleEnv) apply() {
 		}
 		alive = append(alive, f)
 	}
-	for _, r := range env.p.Rules {
-		ro := &RuleOutcome{Rule: r, Description: DescribeRule(env.p, r)}
+	for _, r := range env.an.Rules {
+		ro := &RuleOutcome{Rule: r, Description: env.an.DescribeRule(r)}
 		or.Rules = append(or.Rules, ro)
 		if r.Final() {
 			env.choose(r, alive, ro)
@@ -102,12 +102,13 @@ func (env *ruleEnv) apply() {
 // DescribeRules lists the plan's rules in plain words, as they will be
 // applied, with the comparisons each test rule makes (one per line).
 func DescribeRules(p *plan.Plan) []string {
+	an := ResolvePlan(p)
 	var out []string
-	for i, r := range p.Rules {
-		s := fmt.Sprintf("%d. (line %d) %s", i+1, r.Line, DescribeRule(p, r))
+	for i, r := range an.Rules {
+		s := fmt.Sprintf("%d. (line %d) %s", i+1, r.Line, an.DescribeRule(r))
 		if r.Kind == plan.RuleRejectIfTestRejects {
 			s += " Comparisons:"
-			for _, tp := range p.TestPairs(r) {
+			for _, tp := range an.Models.TestPairs(r) {
 				s += "\n     " + tp.String()
 			}
 		}
@@ -117,7 +118,7 @@ func DescribeRules(p *plan.Plan) []string {
 }
 
 // DescribeRule says what a rule does, in plain words.
-func DescribeRule(p *plan.Plan, r plan.Rule) string {
+func (an *Analysis) DescribeRule(r plan.Rule) string {
 	switch r.Kind {
 	case plan.RuleRejectUnconverged:
 		return "Reject fits that did not converge or whose likelihood has no finite maximum."
@@ -158,9 +159,9 @@ func DescribeRule(p *plan.Plan, r plan.Rule) string {
 			parts = append(parts, s)
 		}
 		unit := "observations are the sum of the frequency weights"
-		if p.Data.Weights == "" {
+		if !an.Weighted() {
 			unit = "observations are the rows used"
-		} else if p.Data.Sampling() {
+		} else if an.Errors.Sampling {
 			unit = "with sampling weights, observations are the rows used"
 		}
 		return "Reject a model when " + strings.Join(parts, ", or when ") + " (" + unit + ")."
@@ -249,7 +250,7 @@ func (env *ruleEnv) judge(r plan.Rule, f *FitEntry, alive []*FitEntry) (bool, st
 // gridEffects is the plan's Models restricted to the candidate effects of
 // one approach and link that are in the grid of fits.
 func (env *ruleEnv) gridEffects(approach fit.Comparison, link fit.Link) plan.Models {
-	m := env.p.Models
+	m := env.an.Models
 	m.Effects = nil
 	for _, f := range env.or.Fits {
 		if !f.Auxiliary && f.Approach == approach && f.Link == link {
@@ -281,7 +282,7 @@ func (env *ruleEnv) judgeTest(r plan.Rule, f *FitEntry) (bool, string) {
 			parts = append(parts, fmt.Sprintf("not tested against %s: it has no usable fit (%s)", full.idOr(fit.ModelID(f.Result.Model.ComparisonName(), t.String(), f.Link)), status))
 			continue
 		}
-		if ok, why := plan.TestDefined(r.Test, f.Approach, f.Link, f.Effects, t, env.p.Data.Sampling()); !ok {
+		if ok, why := plan.TestDefined(r.Test, f.Approach, f.Link, f.Effects, t, env.an.Errors.Sampling); !ok {
 			// The plan check refuses such rules; this guards a plan built
 			// in code.
 			parts = append(parts, fmt.Sprintf("not tested against %s: %s", full.ID, why))
@@ -515,7 +516,7 @@ func (env *ruleEnv) judgeSparse(r plan.Rule, f *FitEntry) (bool, string) {
 	keep := true
 	nobs := or.Data.NObs()
 	unit := "observations"
-	if env.p.Data.Sampling() {
+	if env.an.Errors.Sampling {
 		nobs, unit = float64(or.Data.N), "rows"
 	}
 	if r.PerParameter > 0 {
@@ -549,7 +550,7 @@ func (env *ruleEnv) smallestCategory(r plan.Rule, f *FitEntry) (string, bool) {
 	ds := or.Data
 	levels := ds.Categories
 	weight := func(i int) float64 {
-		if ds.Weights == nil || env.p.Data.Sampling() {
+		if ds.Weights == nil || env.an.Errors.Sampling {
 			return 1
 		}
 		return ds.Weights[i]

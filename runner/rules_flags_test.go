@@ -50,7 +50,7 @@ func TestTableFlagRules(t *testing.T) {
 					e.Result.Message = "no finite maximum"
 				}
 			}
-			newRuleEnv(p, or).apply()
+			newRuleEnv(ResolvePlan(p), or).apply()
 			if c.want != nil {
 				wantLines(t, verdictLines(or, 0), c.want)
 			}

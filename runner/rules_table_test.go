@@ -160,7 +160,7 @@ func TestTableTestRule(t *testing.T) {
 		t.Run(c.name, func(t *testing.T) {
 			p := handPlan(t, "[parallel, partial, nonparallel]", fmt.Sprintf("  - reject_if_test_rejects: {test: lr, alpha: 0.05, against: %s}\n  - choose: {by: aic}\n", c.against))
 			or := handOutcome(c.fits, []int{0, 1, 2}, []float64{0, 1, 2})
-			env := newRuleEnv(p, or)
+			env := newRuleEnv(ResolvePlan(p), or)
 			env.test = func(kind fit.TestKind, f, full *FitEntry) fit.Test {
 				return tests[f.Effects.String()+"|"+full.Effects.String()]
 			}
@@ -235,7 +235,7 @@ func TestTableChoose(t *testing.T) {
 		t.Run(c.name, func(t *testing.T) {
 			p := handPlan(t, "[parallel, partial, nonparallel]", c.pre+"  - "+c.rule+"\n")
 			or := handOutcome(c.fits, []int{0, 1, 2}, []float64{0, 1, 2})
-			env := newRuleEnv(p, or)
+			env := newRuleEnv(ResolvePlan(p), or)
 			env.tic = func(f *FitEntry) (float64, float64, error) {
 				pen := 1.25 * float64(f.Result.NParams)
 				if f.Result.NParams == 3 {
@@ -302,7 +302,7 @@ func TestTableSimplerIsClose(t *testing.T) {
 		t.Run(c.name, func(t *testing.T) {
 			p := handPlan(t, "[parallel, partial, nonparallel]", "  - reject_if_simpler_is_close: "+c.rule+"\n  - choose: {by: aic}\n")
 			or := handOutcome(threeFits(), []int{0, 1, 2}, []float64{0, 1, 2})
-			env := newRuleEnv(p, or)
+			env := newRuleEnv(ResolvePlan(p), or)
 			env.probs = func(f *FitEntry, X, off []float64) ([]float64, error) {
 				if len(X) != 3 || X[0] != 0 || X[1] != 1 || X[2] != 2 {
 					return nil, fmt.Errorf("unexpected points %v", X)
@@ -350,7 +350,7 @@ func TestTableSparse(t *testing.T) {
 		t.Run(c.name, func(t *testing.T) {
 			p := handPlan(t, "[parallel, partial, nonparallel]", "  - reject_if_sparse: "+c.rule+"\n  - choose: {by: aic, otherwise: cumulative/parallel/logit}\n")
 			or := handOutcome(threeFits(), y, x)
-			env := newRuleEnv(p, or)
+			env := newRuleEnv(ResolvePlan(p), or)
 			env.labels = func(col string) ([]string, error) { return g, nil }
 			env.apply()
 			wantLines(t, verdictLines(or, 0), c.want)
@@ -388,7 +388,7 @@ func TestTableUnstable(t *testing.T) {
 		t.Run(c.name, func(t *testing.T) {
 			p := handPlan(t, "[parallel, constrained, nonparallel]", "  - reject_if_unstable: "+c.rule+"\n  - choose: {by: aic}\n")
 			or := handOutcome(fits, []int{0, 1, 2}, []float64{0, 1, 2})
-			newRuleEnv(p, or).apply()
+			newRuleEnv(ResolvePlan(p), or).apply()
 			wantLines(t, verdictLines(or, 0), c.want)
 		})
 	}

@@ -90,7 +90,7 @@ func TestRuleRejectIfTestRejects(t *testing.T) {
 	// again over the same fits.
 	p.Rules[2].Against = plan.AgainstLeast
 	least := &OutcomeResult{Outcome: or.Outcome, Data: or.Data, FitData: or.FitData, Fits: or.Fits}
-	applyRules(p, least)
+	applyRules(ResolvePlan(p), least)
 	lr := least.Rules[2]
 	if v := verdictOf(lr, "cumulative/parallel/logit"); v == nil || v.Kept || !strings.Contains(v.Reason, "likelihood-ratio test against cumulative/nonparallel/logit: chi2(12) = 49.203") {
 		t.Errorf("parallel against the least constrained: %+v", v)

@@ -60,53 +60,53 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 	if p.Report.Timestamp {
 		res.Started = time.Now().UTC().Format(time.RFC3339)
 	}
-	a := ResolvePlan(p)
-	res.Analysis = a
-	res.Notes = append(res.Notes, a.Errors.Notes()...)
+	an := ResolvePlan(p)
+	res.Analysis = an
+	res.Notes = append(res.Notes, an.Errors.Notes()...)
 	for i, oc := range p.Outcomes {
-		or, err := runOutcome(p, a, a.Outcomes[i], oc, opt, res.DataHash)
+		or, err := runOutcome(p, an, an.Outcomes[i], oc, opt, res.DataHash)
 		if err != nil {
 			return nil, err
 		}
 		res.Outcomes = append(res.Outcomes, or)
 	}
-	adjustHypotheses(p, res)
+	adjustHypotheses(an, res)
 	return res, nil
 }
 
 // runOutcome resolves, then does: the outcome's data and design, the
 // partial sets, the grid of fits, the tests, the rules, overall fit and
 // inference.
-func runOutcome(p *plan.Plan, a *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash string) (*OutcomeResult, error) {
+func runOutcome(p *plan.Plan, an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash string) (*OutcomeResult, error) {
 	if p.Data.Imputed != nil {
-		return runImputedOutcome(p, a, r, oc, opt)
+		return runImputedOutcome(p, an, r, oc, opt)
 	}
-	ld, err := a.Load(r)
+	ld, err := an.Load(r)
 	if err != nil {
 		return nil, err
 	}
 	ds, dz := ld.Data, ld.Design
 	or := &OutcomeResult{Outcome: oc, Data: ds, FitData: ld.FitData, Design: dz, Terms: termsOf(dz), dataOptions: r.Options}
 	or.Notes = append(or.Notes, dz.Notes...)
-	if err := a.CheckDesign(r, or.FitData); err != nil {
+	if err := an.CheckDesign(r, or.FitData); err != nil {
 		return nil, err
 	}
-	fopt := a.Fit
-	sandwich := a.Errors.Sandwich(ds, or.FitData)
-	links := p.Models.Links
-	backward := p.Models.Backward()
+	fopt := an.Fit
+	sandwich := an.Errors.Sandwich(ds, or.FitData)
+	links := an.Models.Links
+	backward := an.Models.Backward()
 
 	// 1. The partial set of each approach: listed, or selected stepwise
 	// (with the plan's standard errors).
 	swopt := fopt
 	swopt.Sandwich = sandwich
-	or.FreeSets, or.Stepwise = freeSets(p, or.Terms, or.FitData, backward, swopt, opt.Workers)
+	or.FreeSets, or.Stepwise = freeSets(an, or.Terms, or.FitData, backward, swopt, opt.Workers)
 
 	// 2. The grid of candidate fits and the auxiliary fits the tests need.
-	jobs, notes := gridJobs(p, or.Terms, or.FreeSets, backward)
+	jobs, notes := gridJobs(an, or.Terms, or.FreeSets, backward)
 	or.Notes = append(or.Notes, notes...)
 	if opt.Executor != nil {
-		ctx := &ruleContext{outcome: oc.Column, dataFile: a.DataFile, dataHash: dataHash, dataOptions: r.Options, fitOptions: fopt, sandwich: sandwich}
+		ctx := &ruleContext{outcome: oc.Column, dataFile: an.DataFile, dataHash: dataHash, dataOptions: r.Options, fitOptions: fopt, sandwich: sandwich}
 		if !dz.Trivial() {
 			spec := r.Design
 			ctx.design = &spec
@@ -120,22 +120,22 @@ func runOutcome(p *plan.Plan, a *Analysis, r Reading, oc plan.Outcome, opt Optio
 	or.Fits = jobs
 
 	// 3. Tests of the parallel-lines assumption and nested LR tests.
-	for _, ap := range p.Models.Approaches {
+	for _, ap := range an.Models.Approaches {
 		for _, l := range links {
-			or.Tests = append(or.Tests, testBlock(p, a, or, ap, l))
+			or.Tests = append(or.Tests, testBlock(an, or, ap, l))
 		}
 	}
 
 	// 4. The decision rules, in order.
-	applyRules(p, or)
+	applyRules(an, or)
 
 	// 5. Overall fit of the candidates and goodness of fit of the chosen
 	// model.
-	runFitStats(a, or)
+	runFitStats(an, or)
 
 	// 6. What the plan asks beyond the choice: hypotheses, marginal
 	// effects, predictions for new rows.
-	if err := runInference(p, or); err != nil {
+	if err := runInference(an, or); err != nil {
 		return nil, err
 	}
 	return or, nil
@@ -143,21 +143,21 @@ func runOutcome(p *plan.Plan, a *Analysis, r Reading, oc plan.Outcome, opt Optio
 
 // freeSets returns the partial set of each approach: terms, listed in
 // the plan or selected stepwise (each term's columns tested jointly).
-func freeSets(p *plan.Plan, terms []fit.Term, d *fit.Data, backward bool, fopt fit.Options, workers int) ([]FreeSet, []StepwiseRecord) {
+func freeSets(an *Analysis, terms []fit.Term, d *fit.Data, backward bool, fopt fit.Options, workers int) ([]FreeSet, []StepwiseRecord) {
 	var out []FreeSet
 	var sw []StepwiseRecord
-	sel := p.Models.Partial.Select
+	sel := an.Models.Partial.Select
 	if sel == nil {
-		for _, a := range p.Models.Approaches {
-			out = append(out, FreeSet{Approach: a, Predictors: termsIn(terms, p.Models.Partial.Free), Source: "plan"})
+		for _, a := range an.Models.Approaches {
+			out = append(out, FreeSet{Approach: a, Predictors: termsIn(terms, an.Models.Partial.Free), Source: "plan"})
 		}
 		return out, nil
 	}
-	link := p.Models.Links[0]
-	sw = make([]StepwiseRecord, len(p.Models.Approaches))
+	link := an.Models.Links[0]
+	sw = make([]StepwiseRecord, len(an.Models.Approaches))
 	var wg sync.WaitGroup
 	sem := make(chan struct{}, workers)
-	for i, a := range p.Models.Approaches {
+	for i, a := range an.Models.Approaches {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
@@ -188,7 +188,7 @@ func freeFor(sets []FreeSet, approach fit.Comparison) []string {
 }
 
 // gridJobs lists the candidate fits in plan order, then the auxiliary fits.
-func gridJobs(p *plan.Plan, terms []fit.Term, sets []FreeSet, backward bool) ([]*FitEntry, []string) {
+func gridJobs(an *Analysis, terms []fit.Term, sets []FreeSet, backward bool) ([]*FitEntry, []string) {
 	var jobs []*FitEntry
 	var notes []string
 	have := map[string]bool{}
@@ -199,18 +199,18 @@ func gridJobs(p *plan.Plan, terms []fit.Term, sets []FreeSet, backward bool) ([]
 		}
 	}
 	var groups []Group
-	for _, g := range p.Models.Partial.Groups {
+	for _, g := range an.Models.Partial.Groups {
 		if cols := columnsOf(terms, g.Predictors); len(cols) > 0 {
 			groups = append(groups, Group{Name: g.Name, Predictors: cols})
 		}
 	}
 	cols := allColumns(terms)
-	for _, a := range p.Models.Approaches {
+	for _, a := range an.Models.Approaches {
 		freeTerms := freeFor(sets, a)
 		free := columnsOf(terms, freeTerms)
 		bw := backward && a == fit.Stage
-		for _, l := range p.Models.Links {
-			for _, s := range p.Models.Effects {
+		for _, l := range an.Models.Links {
+			for _, s := range an.Models.Effects {
 				id := cellID(a, bw, s.String(), l)
 				if s == fit.StereotypeEffects && a != fit.Adjacent {
 					continue
@@ -224,7 +224,7 @@ func gridJobs(p *plan.Plan, terms []fit.Term, sets []FreeSet, backward bool) ([]
 					continue
 				}
 				g := groups
-				if s == fit.ConstrainedEffects && (len(g) == 0 || p.Models.Partial.Select != nil) {
+				if s == fit.ConstrainedEffects && (len(g) == 0 || an.Models.Partial.Select != nil) {
 					g = []Group{{Predictors: free}}
 				}
 				spec, err := EffectsSpec(a, bw, l, s, cols, free, g)
@@ -237,11 +237,11 @@ func gridJobs(p *plan.Plan, terms []fit.Term, sets []FreeSet, backward bool) ([]
 		}
 	}
 	// Auxiliary fits for the parallel-lines tests.
-	needPer := slices.Contains(p.Tests.ParallelLines, fit.TestLR)
-	needGlobal := needPer || slices.Contains(p.Tests.ParallelLines, fit.TestWald) || slices.Contains(p.Tests.ParallelLines, fit.TestScore)
-	for _, a := range p.Models.Approaches {
+	needPer := slices.Contains(an.Tests.ParallelLines, fit.TestLR)
+	needGlobal := needPer || slices.Contains(an.Tests.ParallelLines, fit.TestWald) || slices.Contains(an.Tests.ParallelLines, fit.TestScore)
+	for _, a := range an.Models.Approaches {
 		bw := backward && a == fit.Stage
-		for _, l := range p.Models.Links {
+		for _, l := range an.Models.Links {
 			if !needGlobal {
 				continue
 			}

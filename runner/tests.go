@@ -3,7 +3,6 @@ package runner
 import (
 	"slices"
 
-	"ordplan/plan"
 	"ordplan/runner/fit"
 )
 
@@ -20,15 +19,15 @@ func missingTest(kind fit.TestKind, reason string) fit.Test {
 
 // testBlock runs the parallel-lines tests the plan asks for and the nested
 // likelihood-ratio tests of one approach and link.
-func testBlock(p *plan.Plan, a *Analysis, or *OutcomeResult, approach fit.Comparison, link fit.Link) *TestBlock {
+func testBlock(an *Analysis, or *OutcomeResult, approach fit.Comparison, link fit.Link) *TestBlock {
 	tb := &TestBlock{Approach: approach, Link: link}
 	d := or.FitData
 	cell := func(s fit.Structure) *FitEntry { return or.Cell(approach, s, link) }
 	par, np := cell(fit.ParallelEffects), cell(fit.NonparallelEffects)
 	cumLogit := approach == fit.Cumulative && link == fit.Logit
-	sw, fopt := a.Errors.Sampling, a.Fit
+	sw, fopt := an.Errors.Sampling, an.Fit
 	var brant *fit.BrantResult
-	for _, kind := range p.Tests.ParallelLines {
+	for _, kind := range an.Tests.ParallelLines {
 		if sw && kind != fit.TestWald {
 			if kind == fit.TestLR || kind == fit.TestScore || cumLogit {
 				tb.Global = append(tb.Global, missingTest(kind, pseudoReason))
@@ -64,7 +63,7 @@ func testBlock(p *plan.Plan, a *Analysis, or *OutcomeResult, approach fit.Compar
 	for _, term := range or.Terms {
 		pred := term.Name
 		vt := VarTests{Predictor: pred}
-		for _, kind := range p.Tests.ParallelLines {
+		for _, kind := range an.Tests.ParallelLines {
 			if sw && kind != fit.TestWald {
 				continue
 			}
