@@ -239,6 +239,7 @@ func cumulativeChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 	l.SetXAxis(gridLabels(xs))
 	fig := newFigure(title, pf.focus, "cumulative probability")
 	fig.yMin, fig.yMax = 0, 1
+	fig.legendUp = true
 	bottom := make([]float64, len(xs))
 	for j, lv := range res.Categories {
 		col := categoryColor(j, J)

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"image/color"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -12,6 +13,7 @@ import (
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
 	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/vgsvg"
 )
 
 // figure is a chart drawn as a static SVG image for report.md (report.html
@@ -22,6 +24,9 @@ type figure struct {
 	xNames                []string // a category axis (x = 0, 1, ...); nil: a numeric axis
 	yMin, yMax            float64  // NaN: from the data
 	series                []figSeries
+	// legendUp lists the legend from the last series to the first, as
+	// the layers of a stacked chart are seen from top to bottom.
+	legendUp bool
 }
 
 // figSeries is one series: a line and/or points, or a filled band between
@@ -49,14 +54,110 @@ func hexColor(s string, alpha float64) color.Color {
 	return color.NRGBA{R: uint8(v >> 16), G: uint8(v >> 8), B: uint8(v), A: uint8(math.Round(255 * alpha))}
 }
 
-// svg draws the figure, 16 x 10 cm.
+// Size of a figure's plot (axes and data); the legend, when there is one,
+// is placed to its right, outside the data, and widens the image.
+const (
+	figWidth  = 16 * vg.Centimeter
+	figHeight = 10 * vg.Centimeter
+	legendGap = 8 // points between the data area and the legend
+)
+
+// figLayout is where a drawn figure put its parts, in the image's
+// coordinates (points from the lower left corner).
+type figLayout struct {
+	width, height vg.Length
+	data          vg.Rectangle // the data area inside the axes
+	legend        vg.Rectangle // the legend's box (empty without a legend)
+	marks         []vg.Point   // every data point and line vertex drawn
+}
+
+// svg draws the figure.
 func (f *figure) svg() ([]byte, error) {
+	b, _, err := f.draw()
+	return b, err
+}
+
+// draw draws the figure as SVG, the plot at figWidth x figHeight and the
+// legend in a column to its right, top-aligned with the data area, so that
+// it never covers the data.
+func (f *figure) draw() ([]byte, *figLayout, error) {
+	p, leg, err := f.plot()
+	if err != nil {
+		return nil, nil, err
+	}
+	lw := vg.Length(0)
+	if n := leg.Rectangle(draw.Canvas{}).Size().X; n > 0 {
+		lw = n + 2*legendGap
+	}
+	lay := &figLayout{width: figWidth + lw, height: figHeight}
+	c := vgsvg.New(lay.width, lay.height)
+	dc := draw.New(c)
+	plotC := draw.Crop(dc, 0, -lw, 0, 0)
+	plotC = draw.Crop(plotC, f.tickOverhang(p, plotC), 0, 0, 0)
+	p.Draw(plotC)
+	data := p.DataCanvas(plotC)
+	lay.data = data.Rectangle
+	if lw > 0 {
+		legC := draw.Canvas{Canvas: c, Rectangle: vg.Rectangle{
+			Min: vg.Point{X: data.Max.X + legendGap, Y: data.Min.Y},
+			Max: vg.Point{X: lay.width - legendGap, Y: data.Max.Y}}}
+		leg.Draw(legC)
+		r := leg.Rectangle(legC)
+		// Rectangle measures from the side opposite to Left; the legend
+		// is drawn from the canvas's left edge.
+		w := r.Size().X
+		lay.legend = vg.Rectangle{Min: vg.Point{X: legC.Min.X, Y: r.Min.Y}, Max: vg.Point{X: legC.Min.X + w, Y: r.Max.Y}}
+	}
+	for _, s := range f.series {
+		for _, ys := range [][]float64{s.ys, s.lo, s.hi} {
+			for i, y := range ys {
+				x := float64(i)
+				if s.xs != nil {
+					x = s.xs[i]
+				}
+				if finite(y) && finite(x) {
+					lay.marks = append(lay.marks, vg.Point{X: data.X(p.X.Norm(x)), Y: data.Y(p.Y.Norm(y))})
+				}
+			}
+		}
+	}
+	var b bytes.Buffer
+	if _, err := c.WriteTo(&b); err != nil {
+		return nil, nil, fmt.Errorf("drawing a figure: %w", err)
+	}
+	return b.Bytes(), lay, nil
+}
+
+// tickOverhang is how far the first slanted tick label of a category
+// axis would reach left of the image: the room to leave for it.
+func (f *figure) tickOverhang(p *plot.Plot, c draw.Canvas) vg.Length {
+	if f.xNames == nil || p.X.Tick.Label.Rotation == 0 {
+		return 0
+	}
+	// The label's box turned by the rotation, with a tenth more width for
+	// viewers whose font runs wider than the one measured here.
+	size := p.X.Tick.Label.Rectangle(f.xNames[0]).Size()
+	th := p.X.Tick.Label.Rotation
+	reach := 1.1*size.X*vg.Length(math.Cos(th)) + size.Y*vg.Length(math.Sin(th)) + legendGap
+	data := p.DataCanvas(c)
+	tick := data.X(p.X.Norm(0)) - c.Min.X
+	return max(0, reach-tick)
+}
+
+// plot builds the figure's plot and, separately, its legend.
+func (f *figure) plot() (*plot.Plot, *plot.Legend, error) {
 	p := plot.New()
 	p.Title.Text = f.title
 	p.X.Label.Text = f.xLabel
 	p.Y.Label.Text = f.yLabel
-	p.Legend.Top = true
-	p.Legend.Left = false
+	leg := plot.NewLegend()
+	leg.Top, leg.Left = true, true
+	leg.Padding = vg.Points(2)
+	type entry struct {
+		name   string
+		thumbs []plot.Thumbnailer
+	}
+	var entries []entry
 	p.Add(plotter.NewGrid())
 	if f.xNames != nil {
 		var ticks []plot.Tick
@@ -89,7 +190,7 @@ func (f *figure) svg() ([]byte, error) {
 				ring := plotter.XYs{{X: xs[i] - 0.2, Y: s.lo[i]}, {X: xs[i] + 0.2, Y: s.lo[i]}, {X: xs[i] + 0.2, Y: s.hi[i]}, {X: xs[i] - 0.2, Y: s.hi[i]}}
 				poly, err := plotter.NewPolygon(ring)
 				if err != nil {
-					return nil, err
+					return nil, nil, err
 				}
 				poly.Color = hexColor(s.color, a)
 				poly.LineStyle.Width = 0
@@ -113,7 +214,7 @@ func (f *figure) svg() ([]byte, error) {
 			if len(ring) >= 3 {
 				poly, err := plotter.NewPolygon(ring)
 				if err != nil {
-					return nil, err
+					return nil, nil, err
 				}
 				a := s.alpha
 				if a == 0 {
@@ -143,7 +244,7 @@ func (f *figure) svg() ([]byte, error) {
 			if !s.noLine {
 				l, err := plotter.NewLine(pts)
 				if err != nil {
-					return nil, err
+					return nil, nil, err
 				}
 				l.Color = col
 				l.Width = vg.Points(w)
@@ -156,7 +257,7 @@ func (f *figure) svg() ([]byte, error) {
 			if s.points {
 				sc, err := plotter.NewScatter(pts)
 				if err != nil {
-					return nil, err
+					return nil, nil, err
 				}
 				sc.GlyphStyle.Color = col
 				sc.GlyphStyle.Shape = draw.CircleGlyph{}
@@ -166,7 +267,7 @@ func (f *figure) svg() ([]byte, error) {
 			}
 		}
 		if s.legend && len(thumbs) > 0 {
-			p.Legend.Add(s.name, thumbs...)
+			entries = append(entries, entry{s.name, thumbs})
 		}
 	}
 	if finite(f.yMin) {
@@ -175,15 +276,13 @@ func (f *figure) svg() ([]byte, error) {
 	if finite(f.yMax) {
 		p.Y.Max = f.yMax
 	}
-	w, err := p.WriterTo(16*vg.Centimeter, 10*vg.Centimeter, "svg")
-	if err != nil {
-		return nil, err
+	if f.legendUp {
+		slices.Reverse(entries)
 	}
-	var b bytes.Buffer
-	if _, err := w.WriteTo(&b); err != nil {
-		return nil, fmt.Errorf("drawing a figure: %w", err)
+	for _, e := range entries {
+		leg.Add(e.name, e.thumbs...)
 	}
-	return b.Bytes(), nil
+	return p, &leg, nil
 }
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
