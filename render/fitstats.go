@@ -21,13 +21,20 @@ func writeOverallFit(d *doc, or *runner.OutcomeResult) {
 	}
 	d.h(3, "Overall fit")
 	d.p("Each candidate against the model with thresholds only (no predictor) of the same approach and link: the likelihood-ratio test that every slope is zero, and pseudo-R² measures. McFadden: 1 − LL/LL₀; Cox-Snell: 1 − exp(2(LL₀ − LL)/N); Nagelkerke: Cox-Snell divided by its largest value 1 − exp(2 LL₀/N); McKelvey-Zavoina (cumulative models with parallel effects): the share of the latent variable's variance explained, var(x'b)/(var(x'b) + var(e)). None of them is the share of variance explained in the usual sense; compare them between models of the same data only. Sources are listed in the documentation of the models.")
+	if or.Imputed != nil {
+		d.p("On imputed data both models were fitted on each of the %d imputed sets. The likelihood-ratio test is pooled by D3 (Meng and Rubin 1992; the thresholds-only model at the mean of the sets' thresholds, the candidate at its pooled estimates): the column shows k F and the p-value comes from F(k, v), v in decisions.json. LL₀ and each pseudo-R² are the means over the sets of each set's value, the point estimate of Rubin's rules; they have no pooled standard error.", or.Imputed.M)
+	}
 	var rows [][]string
 	for _, o := range or.Overall {
 		mz := "—"
 		if !math.IsNaN(o.McKelveyZavoina) {
 			mz = numfmt.Fixed(o.McKelveyZavoina, 4)
 		}
-		row := []string{o.Model, numfmt.Fixed(o.NullLogLik, 3)}
+		model := o.Model
+		if o.LR.OK && o.LR.Pooled != "" {
+			model += " (pooled, " + o.LR.Pooled + ")"
+		}
+		row := []string{model, numfmt.Fixed(o.NullLogLik, 3)}
 		if o.LR.OK {
 			row = append(row, numfmt.Stat(o.LR.Chi2), fmt.Sprint(o.LR.DF), numfmt.PValue(o.LR.P))
 		} else {

@@ -65,7 +65,7 @@ data: {file: orig.csv, imputed: {file: stacked.csv, column: imp}}
 outcomes: [{column: y}]
 predictors: [x1, x2]
 models: {approaches: [cumulative], effects: [parallel, nonparallel]}
-tests: {parallel_lines: [lr, wald]}
+tests: {parallel_lines: [lr, wald, score, brant]}
 rules:
   - choose: {by: bic}
 inference:
@@ -104,6 +104,11 @@ func TestImputedReport(t *testing.T) {
 		"### Predictions for new rows",
 		"each number was predicted on each of the 4 imputed sets by that set's fit and pooled by Rubin's rules",
 		"marginal effects and its predictions for new rows are computed on each imputed set",
+		"### Overall fit",
+		"The likelihood-ratio test is pooled by D3 (Meng and Rubin 1992",
+		"| cumulative/parallel/logit (pooled, D3) |",
+		"| Brant (all predictors) (pooled, D1) |",
+		"| Score (all predictors) (pooled, D2) |",
 	} {
 		if !strings.Contains(md, want) {
 			t.Errorf("report.md lacks %q", want)

@@ -138,7 +138,7 @@ func TestImputedIdenticalSets(t *testing.T) {
 	}
 	// Every parallel-lines test pooled over identical sets is the
 	// single-set test: Brant by D1, score and Wolfe-Gould by D2 (r = 0).
-	methods := map[string]string{"lr": "D3", "wald": "D1", "score": "D2", "brant": "D1", "wolfe_gould": "D2"}
+	methods := map[string]string{"lr": "D3", "wald": "D1", "score": "D2", "brant": "D1", "wolfe_gould": "D2", "lr_vs_null": "D3"}
 	gi, gs := oi.Tests[0].Global, os1.Tests[0].Global
 	if len(gi) != 5 || len(gs) != 5 {
 		t.Fatalf("global tests: %d pooled, %d single", len(gi), len(gs))
@@ -156,6 +156,24 @@ func TestImputedIdenticalSets(t *testing.T) {
 		for i, tt := range vt.Tests {
 			same(vt.Predictor+" "+tt.Name, oi.Tests[0].PerVariable[v].Tests[i], tt)
 		}
+	}
+	// Overall fit over identical sets: the single-set LL0, pseudo-R2 and
+	// likelihood-ratio test (D3 with r = 0).
+	if len(oi.Overall) != len(os1.Overall) || len(oi.Overall) == 0 {
+		t.Fatalf("overall fit: %d pooled, %d single", len(oi.Overall), len(os1.Overall))
+	}
+	for i, o := range oi.Overall {
+		w := os1.Overall[i]
+		for _, c := range [][2]float64{{o.NullLogLik, w.NullLogLik}, {o.McFadden, w.McFadden}, {o.CoxSnell, w.CoxSnell}, {o.Nagelkerke, w.Nagelkerke}} {
+			if math.Abs(c[0]-c[1]) > 1e-9 {
+				t.Errorf("overall fit of %s: pooled %+v, single %+v", o.Model, o.Overall, w.Overall)
+				break
+			}
+		}
+		if math.IsNaN(w.McKelveyZavoina) != math.IsNaN(o.McKelveyZavoina) || !math.IsNaN(w.McKelveyZavoina) && math.Abs(o.McKelveyZavoina-w.McKelveyZavoina) > 1e-9 {
+			t.Errorf("McKelvey-Zavoina of %s: %g vs %g", o.Model, o.McKelveyZavoina, w.McKelveyZavoina)
+		}
+		same("overall "+o.Model, o.LR, w.LR)
 	}
 	// The plan's test rule uses the pooled test (D3 here), which is the
 	// single-set test.
@@ -278,6 +296,23 @@ func TestImputedDifferentSets(t *testing.T) {
 	}
 	if len(or.Hypotheses) == 0 || or.Hypotheses[0].Test.Pooled != "D1" || !or.Hypotheses[0].Test.OK {
 		t.Errorf("hypothesis on imputed data: %+v", or.Hypotheses)
+	}
+	// Overall fit: LL0 and pseudo-R2 are the means of the sets' values,
+	// the test against the thresholds-only model is D3.
+	ov := or.OverallOf("cumulative/parallel/logit")
+	var ll, ll0, r2 float64
+	for k, d := range or.Imputed.Sets {
+		r := or.perSetOf(f)[k].Result
+		null, err := fit.FitNull(d, f.Result.Model, fit.Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		ll += r.LogLik / 5
+		ll0 += null.LogLik / 5
+		r2 += fit.OverallFit(d, r, null).McFadden / 5
+	}
+	if ov == nil || ov.LR.Pooled != "D3" || !ov.LR.OK || math.Abs(ov.NullLogLik-ll0) > 1e-9 || math.Abs(ov.McFadden-r2) > 1e-12 || math.Abs(ov.LR.LLFull-ll) > 1e-9 {
+		t.Errorf("overall fit %+v; by hand LL0 %g, McFadden %g, LL %g", ov, ll0, r2, ll)
 	}
 	for i, want := range []string{"D3", "D1", "D2", "D1", "D2"} {
 		if g := or.Tests[0].Global[i]; !g.OK || g.Pooled != want || !(g.DF2 > 0) || !(g.P > 0 && g.P <= 1) {
