@@ -301,15 +301,25 @@ func (env *ruleEnv) judgeTest(r plan.Rule, f *FitEntry) (bool, string) {
 		}
 		env.num("p against "+full.ID, tt.P)
 		env.num("alpha", r.Alpha)
-		if tt.P < r.Alpha {
-			s += fmt.Sprintf(" < alpha %g", r.Alpha)
-			rejected = true
-		} else {
-			s += fmt.Sprintf(" >= alpha %g", r.Alpha)
-		}
-		parts = append(parts, s)
+		cmp, below := belowLimit(tt.P, r.Alpha, "alpha")
+		rejected = rejected || below
+		parts = append(parts, s+cmp)
 	}
 	return !rejected, strings.Join(parts, "; ")
+}
+
+// belowLimit writes how a verdict's number compares with the rule's limit,
+// the way every verdict says it (" < 10", " >= alpha 0.05": the limit
+// named when what is given), and reports whether the number is below it.
+func belowLimit(v, limit float64, what string) (string, bool) {
+	lim := fmt.Sprintf("%g", limit)
+	if what != "" {
+		lim = what + " " + lim
+	}
+	if v < limit {
+		return " < " + lim, true
+	}
+	return " >= " + lim, false
 }
 
 // pText writes a p-value the report's way, adding its exact value where
@@ -410,13 +420,12 @@ func (env *ruleEnv) judgeClose(r plan.Rule, f *FitEntry, alive []*FitEntry) (boo
 		env.num("largest difference from "+s.ID, best)
 		env.num("max_difference", r.MaxDifference)
 		s := fmt.Sprintf("largest difference from %s in a predicted category probability %s: %s (category %s at %s)", s.ID, where.desc, numfmt.Num(best), label, where.point(at/J))
-		if best < r.MaxDifference {
-			s += fmt.Sprintf(" < %g, the simpler model suffices", r.MaxDifference)
+		cmp, below := belowLimit(best, r.MaxDifference, "")
+		if below {
+			cmp += ", the simpler model suffices"
 			close = true
-		} else {
-			s += fmt.Sprintf(" >= %g", r.MaxDifference)
 		}
-		parts = append(parts, s)
+		parts = append(parts, s+cmp)
 	}
 	return !close, strings.Join(parts, "; ")
 }
@@ -527,13 +536,9 @@ func (env *ruleEnv) judgeSparse(r plan.Rule, f *FitEntry) (bool, string) {
 		env.num("per_parameter", per)
 		env.num("per_parameter limit", r.PerParameter)
 		s := fmt.Sprintf("%s %s for %d parameters: %s per parameter", numfmt.Num(nobs), unit, np, numfmt.Num(per))
-		if per < r.PerParameter {
-			s += fmt.Sprintf(" < %g", r.PerParameter)
-			keep = false
-		} else {
-			s += fmt.Sprintf(" >= %g", r.PerParameter)
-		}
-		parts = append(parts, s)
+		cmp, below := belowLimit(per, r.PerParameter, "")
+		keep = keep && !below
+		parts = append(parts, s+cmp)
 	}
 	if r.SmallestCategory > 0 {
 		s, ok := env.smallestCategory(r, f)
@@ -564,10 +569,8 @@ func (env *ruleEnv) smallestCategory(r plan.Rule, f *FitEntry) (string, bool) {
 		env.num("smallest category count", counts[j])
 		env.num("smallest_category limit", r.SmallestCategory)
 		s := fmt.Sprintf("smallest category count %s (category %s)", numfmt.Num(counts[j]), levels[j])
-		if counts[j] < r.SmallestCategory {
-			return s + fmt.Sprintf(" < %g", r.SmallestCategory), false
-		}
-		return s + fmt.Sprintf(" >= %g", r.SmallestCategory), true
+		cmp, below := belowLimit(counts[j], r.SmallestCategory, "")
+		return s + cmp, !below
 	}
 	if cols := env.columnsReading(r.Within); cols != nil && !varyingEffect(f.Result, cols) {
 		return fmt.Sprintf("the effect of %s is the same in every equation of this model, so counts within its values do not limit it", r.Within), true
@@ -600,10 +603,8 @@ func (env *ruleEnv) smallestCategory(r plan.Rule, f *FitEntry) (string, bool) {
 	env.num("smallest category count", minC)
 	env.num("smallest_category limit", r.SmallestCategory)
 	s := fmt.Sprintf("smallest category count within the %d values of %s: %s (category %s at %s = %s)", len(values), r.Within, numfmt.Num(minC), levels[minJ], r.Within, minV)
-	if minC < r.SmallestCategory {
-		return s + fmt.Sprintf(" < %g", r.SmallestCategory), false
-	}
-	return s + fmt.Sprintf(" >= %g", r.SmallestCategory), true
+	cmp, below := belowLimit(minC, r.SmallestCategory, "")
+	return s + cmp, !below
 }
 
 func argmin(xs []float64) int {
