@@ -299,24 +299,14 @@ func pooledTestBlock(an *Analysis, or *OutcomeResult, perSet [][]*FitEntry, appr
 			case fit.TestWald:
 				vt.Tests = append(vt.Tests, pooledEqualSlopes(np, term.Columns))
 			case fit.TestLR:
-				if len(or.Terms) > 1 {
-					vt.Tests = append(vt.Tests, lr(or.OnlyParallel(approach, term.Name, link), np))
-				} else {
-					vt.Tests = append(vt.Tests, lr(par, np))
-				}
+				vt.Tests = append(vt.Tests, lr(or.termRestricted(approach, term, link), np))
 			}
 		}
 		if len(vt.Tests) > 0 {
 			tb.PerVariable = append(tb.PerVariable, vt)
 		}
 	}
-	for _, pr := range nestedPairs {
-		r, f := cell(pr[0]), cell(pr[1])
-		if r == nil || f == nil || r.Auxiliary && f.Auxiliary {
-			continue
-		}
-		tb.Nested = append(tb.Nested, NestedTest{Restricted: r.ID, Full: f.ID, Test: lr(r, f)})
-	}
+	tb.Nested = or.nestedTests(approach, link, lr)
 	return tb
 }
 

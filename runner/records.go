@@ -5,11 +5,7 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
-	"fmt"
-	"os"
 	"path/filepath"
-	"sort"
-	"strings"
 
 	"ordplan/runner/data"
 	"ordplan/runner/design"
@@ -284,57 +280,20 @@ type RunRecord struct {
 	Command      string              `json:"command_line,omitempty"`
 }
 
-// WriteFiles writes the named files into dir, then run.json with their
-// hashes, all or nothing (see writeAll): a failure leaves the previous
-// run's files as they were, and no symlink in dir is written through. The
-// caller holds the folder's lock (LockOutput).
-func WriteFiles(r *Result, dir string, files map[string][]byte) error {
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return fmt.Errorf("output directory: %w", err)
-	}
+// RunJSON is run.json for a run whose outputs are files (by name): the
+// program, plan, data and seed, and the SHA-256 of every output.
+func RunJSON(r *Result, files map[string][]byte) ([]byte, error) {
 	rec := RunRecord{Program: "ordplan", Version: r.Version,
 		Plan: PlanRef{File: filepath.Base(r.Plan.Path), Title: r.Plan.Title, SHA256: r.Plan.Hash},
 		Data: DataRef{File: r.Plan.Data.File, SHA256: r.DataHash}, NewRows: newRowsRef(r), Imputed: r.Imputed, Seed: r.Plan.Seed, Outputs: map[string]string{}}
 	rec.Timestamp = r.Started
 	rec.GoVersion, rec.Platform, rec.Command = r.GoVersion, r.Platform, r.Command
 	rec.Registration = registrationRecord(r.Registration)
-	names := make([]string, 0, len(files)+1)
-	for n := range files {
-		if n == "run.json" {
-			return fmt.Errorf("an output may not be called run.json")
-		}
-		names = append(names, n)
-	}
-	sort.Strings(names)
-	seen := map[string]string{}
-	for _, n := range names {
-		if prev, dup := seen[strings.ToLower(n)]; dup {
-			return fmt.Errorf("outputs %s and %s differ only in letter case; on some file systems one would replace the other", prev, n)
-		}
-		seen[strings.ToLower(n)] = n
-		s := sha256.Sum256(files[n])
+	for n, b := range files {
+		s := sha256.Sum256(b)
 		rec.Outputs[n] = hex.EncodeToString(s[:])
 	}
-	b, err := MarshalStable(rec)
-	if err != nil {
-		return err
-	}
-	all := make(map[string][]byte, len(files)+1)
-	for n, c := range files {
-		all[n] = c
-	}
-	all["run.json"] = b
-	stale := staleOutputs(dir, all)
-	if err := writeAll(dir, append(names, "run.json"), all); err != nil {
-		return err
-	}
-	// Files the previous run listed and this one does not write (the
-	// predictions of an outcome no longer predicted) would sit beside the
-	// new run.json as if they were its own: remove them.
-	for _, n := range stale {
-		os.Remove(filepath.Join(dir, n))
-	}
-	return nil
+	return MarshalStable(rec)
 }
 
 // newRowsRef names the new-rows file of a run, or nil.
@@ -343,35 +302,4 @@ func newRowsRef(r *Result) *DataRef {
 		return nil
 	}
 	return &DataRef{File: r.Plan.Inference.Predict, SHA256: r.NewRowsHash}
-}
-
-// staleOutputs lists the outputs named by the run.json in dir that are not
-// among files: plain file names of regular files (never a symlink).
-func staleOutputs(dir string, files map[string][]byte) []string {
-	path := filepath.Join(dir, "run.json")
-	fi, err := os.Lstat(path)
-	if err != nil || !fi.Mode().IsRegular() || fi.Size() > 64<<20 {
-		return nil
-	}
-	b, err := os.ReadFile(path)
-	if err != nil {
-		return nil
-	}
-	var prev struct {
-		Outputs map[string]string `json:"outputs_sha256"`
-	}
-	if json.Unmarshal(b, &prev) != nil {
-		return nil
-	}
-	var out []string
-	for n := range prev.Outputs {
-		if _, keep := files[n]; keep || n != filepath.Base(n) || strings.HasPrefix(n, ".") || n == "run.json" {
-			continue
-		}
-		if fi, err := os.Lstat(filepath.Join(dir, n)); err == nil && fi.Mode().IsRegular() {
-			out = append(out, n)
-		}
-	}
-	sort.Strings(out)
-	return out
 }

@@ -14,12 +14,3 @@ type Simulation struct {
 	Subset []string `json:"subset,omitempty"`
 	Kept   *int     `json:"subset_kept,omitempty"`
 }
-
-// WriteReport writes the named files of a report that is not a plan run
-// (a power study) into dir the way a run writes its outputs: all or
-// nothing, through temporary files renamed into place, in the given
-// order (the last marks a complete report). The caller holds the
-// folder's lock (LockOutput).
-func WriteReport(dir string, names []string, files map[string][]byte) error {
-	return writeAll(dir, names, files)
-}

@@ -77,11 +77,7 @@ func testBlock(an *Analysis, or *OutcomeResult, approach fit.Comparison, link fi
 					vt.Tests = append(vt.Tests, fit.WaldEqualSlopes(np.Result, term.Columns))
 				}
 			case fit.TestLR:
-				if len(or.Terms) > 1 {
-					vt.Tests = append(vt.Tests, lrOf(or.OnlyParallel(approach, pred, link), np))
-				} else {
-					vt.Tests = append(vt.Tests, lrOf(par, np))
-				}
+				vt.Tests = append(vt.Tests, lrOf(or.termRestricted(approach, term, link), np))
 			case fit.TestScore:
 				if par.OK() {
 					spec := par.Spec
@@ -96,18 +92,37 @@ func testBlock(an *Analysis, or *OutcomeResult, approach fit.Comparison, link fi
 			tb.PerVariable = append(tb.PerVariable, vt)
 		}
 	}
+	tb.Nested = or.nestedTests(approach, link, func(r, f *FitEntry) fit.Test {
+		if sw {
+			return missingTest(fit.TestLR, pseudoReason)
+		}
+		return lrOf(r, f)
+	})
+	return tb
+}
+
+// termRestricted is the model in which term alone is parallel, restricted
+// within the nonparallel model by the term's likelihood-ratio test: the
+// auxiliary fit, or the parallel model when the term is the only one.
+func (or *OutcomeResult) termRestricted(a fit.Comparison, term fit.Term, l fit.Link) *FitEntry {
+	if len(or.Terms) > 1 {
+		return or.OnlyParallel(a, term.Name, l)
+	}
+	return or.Cell(a, fit.ParallelEffects, l)
+}
+
+// nestedTests runs the nested likelihood-ratio test (lr) of every pair of
+// nestedPairs fitted for an approach and link.
+func (or *OutcomeResult) nestedTests(a fit.Comparison, l fit.Link, lr func(r, f *FitEntry) fit.Test) []NestedTest {
+	var out []NestedTest
 	for _, pr := range nestedPairs {
-		r, f := cell(pr[0]), cell(pr[1])
+		r, f := or.Cell(a, pr[0], l), or.Cell(a, pr[1], l)
 		if r == nil || f == nil || r.Auxiliary && f.Auxiliary {
 			continue
 		}
-		t := lrOf(r, f)
-		if sw {
-			t = missingTest(fit.TestLR, pseudoReason)
-		}
-		tb.Nested = append(tb.Nested, NestedTest{Restricted: r.ID, Full: f.ID, Test: t})
+		out = append(out, NestedTest{Restricted: r.ID, Full: f.ID, Test: lr(r, f)})
 	}
-	return tb
+	return out
 }
 
 // pseudoReason says why likelihood-based tests are not reported with

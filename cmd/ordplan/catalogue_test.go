@@ -17,7 +17,6 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
-	"ordplan/runner"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -234,7 +233,7 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 	if err := os.Symlink(filepath.Join(dir, "precious.txt"), filepath.Join(dir, "O1-out", "report.md")); err != nil {
 		t.Fatal(err)
 	}
-	lock, err := runner.LockOutput(filepath.Join(dir, "O2-out"))
+	lock, err := lockOutput(filepath.Join(dir, "O2-out"))
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -8,8 +8,6 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
-
-	"ordplan/runner"
 )
 
 // twoOutcomePlan writes invented data with two outcomes whose names differ
@@ -90,7 +88,7 @@ func TestOutputsSafe(t *testing.T) {
 		t.Errorf("temporary files left: %v", left)
 	}
 
-	lock, err := runner.LockOutput(out)
+	lock, err := lockOutput(out)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -106,7 +106,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 		base := filepath.Base(planPath)
 		dir = filepath.Join("out", base[:len(base)-len(filepath.Ext(base))])
 	}
-	lock, err := runner.LockOutput(dir)
+	lock, err := lockOutput(dir)
 	if err != nil {
 		return fail(stderr, err)
 	}
@@ -136,7 +136,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
-	if err := runner.WriteFiles(res, dir, files); err != nil {
+	if err := writeRun(res, dir, files); err != nil {
 		return fail(stderr, err)
 	}
 	fmt.Fprintln(stdout, registrationLine(reg))

@@ -70,7 +70,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		base := filepath.Base(planPath)
 		dir = filepath.Join("out", base[:len(base)-len(filepath.Ext(base))]+"-power")
 	}
-	olock, err := runner.LockOutput(dir)
+	olock, err := lockOutput(dir)
 	if err != nil {
 		return fail(stderr, err)
 	}
@@ -114,7 +114,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
-	if err := runner.WriteReport(dir, []string{"power.json", "power.md", "power.html"}, files); err != nil {
+	if err := writeAll(dir, []string{"power.json", "power.md", "power.html"}, files); err != nil {
 		return fail(stderr, err)
 	}
 	for _, op := range pr.Outcomes {

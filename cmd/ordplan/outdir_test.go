@@ -1,4 +1,4 @@
-package runner
+package main
 
 import (
 	"os"
@@ -46,22 +46,22 @@ func TestWriteAllIsAllOrNothing(t *testing.T) {
 // the folder can be locked again.
 func TestLockOutput(t *testing.T) {
 	dir := filepath.Join(t.TempDir(), "out")
-	l1, err := LockOutput(dir)
+	l1, err := lockOutput(dir)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if _, err := LockOutput(dir); err == nil || !strings.Contains(err.Error(), "another ordplan run is writing there") {
+	if _, err := lockOutput(dir); err == nil || !strings.Contains(err.Error(), "another ordplan run is writing there") {
 		t.Fatalf("second lock: %v", err)
 	}
 	l1.Unlock()
-	l2, err := LockOutput(dir)
+	l2, err := lockOutput(dir)
 	if err != nil {
 		t.Fatal(err)
 	}
 	l2.Unlock()
 	f := filepath.Join(t.TempDir(), "file")
 	os.WriteFile(f, nil, 0o644)
-	if _, err := LockOutput(f); err == nil || !strings.Contains(err.Error(), "not a folder") {
+	if _, err := lockOutput(f); err == nil || !strings.Contains(err.Error(), "not a folder") {
 		t.Errorf("a file as output folder: %v", err)
 	}
 }

@@ -1,0 +1,190 @@
+package main
+
+import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"sort"
+	"strconv"
+	"strings"
+	"syscall"
+
+	"ordplan/runner"
+)
+
+// lockFile is the lock a run holds in its output folder.
+const lockFile = ".ordplan.lock"
+
+// outputLock is a held lock on an output folder.
+type outputLock struct{ f *os.File }
+
+// lockOutput creates the output folder if needed and takes its lock, so
+// that one run at a time writes there. The lock is released by Unlock or
+// when the process ends (however it ends); a second run meanwhile is
+// refused with a message naming the holder.
+func lockOutput(dir string) (*outputLock, error) {
+	if fi, err := os.Stat(dir); err == nil && !fi.IsDir() {
+		return nil, fmt.Errorf("output folder %s: exists and is not a folder", dir)
+	}
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return nil, fmt.Errorf("output folder: %w", err)
+	}
+	path := filepath.Join(dir, lockFile)
+	f, err := os.OpenFile(path, os.O_RDWR|os.O_CREATE|syscall.O_NOFOLLOW, 0o644)
+	if err != nil {
+		return nil, fmt.Errorf("output folder %s: cannot open its lock file %s: %w", dir, lockFile, err)
+	}
+	if err := syscall.Flock(int(f.Fd()), syscall.LOCK_EX|syscall.LOCK_NB); err != nil {
+		holder := ""
+		if b, rerr := os.ReadFile(path); rerr == nil && len(b) > 0 {
+			holder = " (held by " + strings.TrimSpace(string(b)) + ")"
+		}
+		f.Close()
+		if errors.Is(err, syscall.EWOULDBLOCK) {
+			return nil, fmt.Errorf("output folder %s: another ordplan run is writing there%s; wait for it to finish or give another --out", dir, holder)
+		}
+		return nil, fmt.Errorf("output folder %s: cannot lock %s: %v", dir, lockFile, err)
+	}
+	host, _ := os.Hostname()
+	f.Truncate(0)
+	f.WriteAt([]byte("process "+strconv.Itoa(os.Getpid())+" on "+host+"\n"), 0)
+	return &outputLock{f: f}, nil
+}
+
+// Unlock releases the lock.
+func (l *outputLock) Unlock() {
+	if l != nil && l.f != nil {
+		syscall.Flock(int(l.f.Fd()), syscall.LOCK_UN)
+		l.f.Close()
+		l.f = nil
+	}
+}
+
+// writeAll writes every file into dir all or nothing: each goes to a new
+// temporary file in dir (created exclusively, so no symlink is followed),
+// is synced, and only when all are written are they renamed into place
+// (a rename replaces a symlink planted under the name, never its target).
+// On a failure before the renames the folder keeps what it had. names
+// gives the order of the renames; the last one marks a complete run.
+func writeAll(dir string, names []string, files map[string][]byte) error {
+	for _, n := range names {
+		if n == "" || n != filepath.Base(n) || strings.HasPrefix(n, ".") {
+			return fmt.Errorf("output file name %q is not a plain file name", n)
+		}
+	}
+	tmp := make([]string, 0, len(names))
+	defer func() {
+		for _, t := range tmp {
+			os.Remove(t)
+		}
+	}()
+	for _, n := range names {
+		f, err := os.CreateTemp(dir, "."+n+".tmp-*")
+		if err != nil {
+			return fmt.Errorf("writing %s: %w", filepath.Join(dir, n), err)
+		}
+		tmp = append(tmp, f.Name())
+		_, err = f.Write(files[n])
+		if err == nil {
+			err = f.Sync()
+		}
+		if cerr := f.Close(); err == nil {
+			err = cerr
+		}
+		if err == nil {
+			err = os.Chmod(f.Name(), 0o644)
+		}
+		if err != nil {
+			return fmt.Errorf("writing %s: %w (the previous outputs in %s are unchanged)", filepath.Join(dir, n), err, dir)
+		}
+	}
+	for i, n := range names {
+		if err := os.Rename(tmp[i], filepath.Join(dir, n)); err != nil {
+			return fmt.Errorf("writing %s: %w", filepath.Join(dir, n), err)
+		}
+	}
+	tmp = nil
+	if d, err := os.Open(dir); err == nil {
+		d.Sync()
+		d.Close()
+	}
+	return nil
+}
+
+// writeRun writes a run's files into dir, then run.json with their hashes,
+// all or nothing (see writeAll): a failure leaves the previous run's files
+// as they were, and no symlink in dir is written through. The caller holds
+// the folder's lock (lockOutput).
+func writeRun(r *runner.Result, dir string, files map[string][]byte) error {
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return fmt.Errorf("output directory: %w", err)
+	}
+	names := make([]string, 0, len(files)+1)
+	for n := range files {
+		if n == "run.json" {
+			return fmt.Errorf("an output may not be called run.json")
+		}
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	seen := map[string]string{}
+	for _, n := range names {
+		if prev, dup := seen[strings.ToLower(n)]; dup {
+			return fmt.Errorf("outputs %s and %s differ only in letter case; on some file systems one would replace the other", prev, n)
+		}
+		seen[strings.ToLower(n)] = n
+	}
+	b, err := runner.RunJSON(r, files)
+	if err != nil {
+		return err
+	}
+	all := make(map[string][]byte, len(files)+1)
+	for n, c := range files {
+		all[n] = c
+	}
+	all["run.json"] = b
+	stale := staleOutputs(dir, all)
+	if err := writeAll(dir, append(names, "run.json"), all); err != nil {
+		return err
+	}
+	// Files the previous run listed and this one does not write (the
+	// predictions of an outcome no longer predicted) would sit beside the
+	// new run.json as if they were its own: remove them.
+	for _, n := range stale {
+		os.Remove(filepath.Join(dir, n))
+	}
+	return nil
+}
+
+// staleOutputs lists the outputs named by the run.json in dir that are not
+// among files: plain file names of regular files (never a symlink).
+func staleOutputs(dir string, files map[string][]byte) []string {
+	path := filepath.Join(dir, "run.json")
+	fi, err := os.Lstat(path)
+	if err != nil || !fi.Mode().IsRegular() || fi.Size() > 64<<20 {
+		return nil
+	}
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return nil
+	}
+	var prev struct {
+		Outputs map[string]string `json:"outputs_sha256"`
+	}
+	if json.Unmarshal(b, &prev) != nil {
+		return nil
+	}
+	var out []string
+	for n := range prev.Outputs {
+		if _, keep := files[n]; keep || n != filepath.Base(n) || strings.HasPrefix(n, ".") || n == "run.json" {
+			continue
+		}
+		if fi, err := os.Lstat(filepath.Join(dir, n)); err == nil && fi.Mode().IsRegular() {
+			out = append(out, n)
+		}
+	}
+	sort.Strings(out)
+	return out
+}
