@@ -30,6 +30,7 @@ func build(r *runner.Result, dec *runner.Decisions, changes []string) *doc {
 	writeSummary(d, r)
 	writePlan(d, r)
 	writeDictionary(d, r)
+	writeGenerating(d, r)
 	for _, or := range r.Outcomes {
 		writeOutcome(d, r, or)
 	}

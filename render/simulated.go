@@ -3,6 +3,7 @@ package render
 import (
 	"strings"
 
+	"ordplan/render/numfmt"
 	"ordplan/runner"
 )
 
@@ -24,5 +25,40 @@ func writeSimulated(d *doc, r *runner.Result) {
 		SimulatedMark, s.Command, s.N, s.Seed, s.File, model)
 	if s.Kept != nil {
 		d.p("The plan's subset (%s) kept %d of the %d simulated rows; the stated category proportions describe all simulated rows, before the subset.", strings.Join(s.Subset, "; "), *s.Kept, s.N)
+	}
+}
+
+// writeGenerating shows the model the simulated outcomes were drawn from,
+// so that the estimates of the report can be held against it.
+func writeGenerating(d *doc, r *runner.Result) {
+	s := r.Simulated
+	if s == nil || len(s.Truth) == 0 {
+		return
+	}
+	model := s.Model
+	if model == "" {
+		model = "cumulative " + s.Link
+	}
+	d.h(2, "The generating model (simulated data)")
+	d.p("Each outcome was drawn from a %s model with L_m = tau_m - x'b_m over the design columns x the plan's terms make (their constants set on a large sample of the simulated predictors); the stated effects became these coefficients, and the cutpoints were solved so that the stated category proportions hold. A fit of the same model on these data estimates them; other candidates estimate other quantities.", model)
+	for _, t := range s.Truth {
+		head := []string{"Parameter"}
+		for _, b := range t.Boundaries {
+			head = append(head, b)
+		}
+		rows := [][]string{}
+		tau := []string{"tau (cutpoint)"}
+		for _, c := range t.Cutpoints {
+			tau = append(tau, numfmt.Est(c))
+		}
+		rows = append(rows, tau)
+		for k, col := range t.Columns {
+			row := []string{"`" + col + "`"}
+			for _, b := range t.Coefficients[k] {
+				row = append(row, numfmt.Est(b))
+			}
+			rows = append(rows, row)
+		}
+		d.captioned("Generating model of `" + t.Outcome + "`: cutpoints and coefficients at each boundary").table(head, rows)
 	}
 }

@@ -13,4 +13,18 @@ type Simulation struct {
 	// simulated rows they kept (nil without a subset).
 	Subset []string `json:"subset,omitempty"`
 	Kept   *int     `json:"subset_kept,omitempty"`
+	// Truth is each outcome's generating model, to hold the estimates
+	// against.
+	Truth []SimulatedModel `json:"generating,omitempty"`
+}
+
+// SimulatedModel is the model one outcome was drawn from: the cutpoints
+// tau[m] and the coefficient of every design column at every boundary
+// (L_m = tau_m - x'b_m).
+type SimulatedModel struct {
+	Outcome      string      `json:"outcome"`
+	Boundaries   []string    `json:"boundaries"` // lower/upper category labels
+	Cutpoints    []float64   `json:"cutpoints"`
+	Columns      []string    `json:"columns"`
+	Coefficients [][]float64 `json:"coefficients"` // [column][boundary]
 }

@@ -29,6 +29,14 @@ func TestRegisteredExampleBeforeData(t *testing.T) {
 	if !strings.Contains(string(html), "<title>SIMULATED DATA: ") || !strings.Contains(string(html), "<strong>SIMULATED DATA.</strong>") {
 		t.Error("report.html does not say SIMULATED DATA in its title and first line")
 	}
+	// The generating model is shown: the stated arm effect at every
+	// boundary, each site level against north (treatment coding).
+	for _, want := range []string{"## The generating model (simulated data)", "| `arm` | 0.4500 | 0.4500 | 0.4500 | 0.4500 |",
+		"| `site.east` | 0.1000 | 0.1000 | 0.1000 | 0.1000 |", "cumulative logit model generating each outcome"} {
+		if !strings.Contains(string(md), want) {
+			t.Errorf("report.md lacks %q", want)
+		}
+	}
 	if _, err := os.Stat(filepath.Join(dir, "r", "simulated-data.csv")); err != nil {
 		t.Error("the simulated data are not among the outputs")
 	}

@@ -83,7 +83,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, fmt.Errorf("rehearsal on simulated data: %w", err))
 	}
-	res.Simulated = &runner.Simulation{Command: "rehearse", N: rows, Seed: p.Seed, Link: sim.Link.String(), Model: sim.GeneratingModel(), File: simulatedFile}
+	res.Simulated = &runner.Simulation{Command: "rehearse", N: rows, Seed: p.Seed, Link: sim.Link.String(), Model: sim.GeneratingModel(), File: simulatedFile, Truth: sim.Truth()}
 	if len(p.Subset) > 0 && len(res.Outcomes) > 0 && res.Outcomes[0].Data != nil {
 		kept := res.Outcomes[0].Data.RowsRead - res.Outcomes[0].Data.RowsOutside
 		res.Simulated.Kept = &kept

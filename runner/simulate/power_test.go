@@ -107,3 +107,30 @@ func marshal(v any) (string, error) {
 	b, err := runner.MarshalStable(v)
 	return string(b), err
 }
+
+// The candidate with the generating structure follows the stated
+// comparison, direction and link.
+func TestGeneratingCandidate(t *testing.T) {
+	for _, tc := range []struct{ models, assumed, want string }{
+		{"{approaches: [cumulative, stage], effects: [parallel]}", "comparison: stage", "stage/parallel/logit"},
+		{"{approaches: [stage], direction: backward, effects: [parallel]}", "comparison: stage", "stage_backward/parallel/logit"},
+		{"{approaches: [stage], effects: [parallel]}", "{comparison: stage, direction: backward}", ""},
+		{"{approaches: [adjacent], effects: [parallel], links: [probit]}", "{comparison: adjacent, link: probit}", "adjacent/parallel/probit"},
+		{"{approaches: [cumulative], effects: [parallel]}", "comparison: adjacent", ""},
+	} {
+		src := strings.Replace(waldPlan, "models: {approaches: [cumulative], effects: [parallel]}", "models: "+tc.models, 1)
+		if strings.HasPrefix(tc.assumed, "{") {
+			src = strings.Replace(src, "assumptions:\n", "assumptions:\n  "+strings.Trim(strings.ReplaceAll(tc.assumed, ", ", "\n  "), "{}")+"\n", 1)
+		} else {
+			src = strings.Replace(src, "assumptions:\n", "assumptions:\n  "+tc.assumed+"\n", 1)
+		}
+		p := parsePlan(t, src)
+		sim, err := New(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := generating(p, p.Outcomes[0], sim).Generating; got != tc.want {
+			t.Errorf("%s / %s: generating candidate %q, want %q", tc.models, tc.assumed, got, tc.want)
+		}
+	}
+}

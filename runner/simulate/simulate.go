@@ -11,6 +11,7 @@ import (
 	"strings"
 
 	"ordplan/plan"
+	"ordplan/runner"
 	"ordplan/runner/design"
 	"ordplan/runner/fit"
 )
@@ -113,6 +114,26 @@ func (s *Sim) GeneratingModel() string {
 		c += " (" + s.Plan.Assumptions.Direction + ")"
 	}
 	return c + " " + s.Link.String()
+}
+
+// Truth gives each outcome's generating model for a report.
+func (s *Sim) Truth() []runner.SimulatedModel {
+	var out []runner.SimulatedModel
+	for _, o := range s.Outcomes {
+		t := runner.SimulatedModel{Outcome: o.Column, Cutpoints: slices.Clone(o.Cut), Columns: slices.Clone(o.Design.Columns)}
+		for m := range o.Cut {
+			t.Boundaries = append(t.Boundaries, fit.BoundaryLabel(o.Categories, m))
+		}
+		for c := range o.Design.Columns {
+			col := make([]float64, len(o.Beta))
+			for m := range o.Beta {
+				col[m] = o.Beta[m][c]
+			}
+			t.Coefficients = append(t.Coefficients, col)
+		}
+		out = append(out, t)
+	}
+	return out
 }
 
 // outcome builds one outcome's generating model on the calibration sample.
