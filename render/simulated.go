@@ -59,6 +59,6 @@ func writeGenerating(d *doc, r *runner.Result) {
 			}
 			rows = append(rows, row)
 		}
-		d.captioned("Generating model of `" + t.Outcome + "`: cutpoints and coefficients at each boundary").table(head, rows)
+		d.captioned("Generating model of `"+t.Outcome+"`: cutpoints and coefficients at each boundary").table(head, rows)
 	}
 }
