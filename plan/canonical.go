@@ -47,18 +47,27 @@ type canonPlan struct {
 }
 
 type canonData struct {
-	File          string        `json:"file"`
-	Missing       string        `json:"missing"`
-	MissingValues []string      `json:"missing_values"`
-	Delimiter     string        `json:"delimiter,omitempty"`
-	Decimal       string        `json:"decimal,omitempty"`
-	Sheet         string        `json:"sheet,omitempty"`
-	HeaderRow     int           `json:"header_row,omitempty"`
-	Weights       *string       `json:"weights"`
-	WeightKind    *string       `json:"weight_kind,omitempty"`
-	Offset        *string       `json:"offset"`
-	Cluster       *string       `json:"cluster"`
-	Imputed       *canonImputed `json:"imputed,omitempty"`
+	File          string           `json:"file"`
+	Missing       string           `json:"missing"`
+	MissingValues []string         `json:"missing_values"`
+	Delimiter     string           `json:"delimiter,omitempty"`
+	Decimal       string           `json:"decimal,omitempty"`
+	Sheet         string           `json:"sheet,omitempty"`
+	HeaderRow     int              `json:"header_row,omitempty"`
+	Weights       *string          `json:"weights"`
+	WeightKind    *string          `json:"weight_kind,omitempty"`
+	Offset        *string          `json:"offset"`
+	Cluster       *string          `json:"cluster"`
+	Imputed       *canonImputed    `json:"imputed,omitempty"`
+	Imputation    *canonImputation `json:"imputation,omitempty"`
+}
+
+type canonImputation struct {
+	Sets             int               `json:"sets"`
+	Iterations       int               `json:"iterations"`
+	Seed             uint64            `json:"seed"`
+	ColumnModels     map[string]string `json:"column_models,omitempty"`
+	ConvergenceTable bool              `json:"convergence_table"`
 }
 
 type canonImputed struct {
@@ -171,6 +180,16 @@ func (p *Plan) canonical() canonPlan {
 	}
 	if im := p.Data.Imputed; im != nil {
 		c.Data.Imputed = &canonImputed{File: im.File, Column: im.Column, Files: im.Files}
+	}
+	if im := p.Data.Imputation; im != nil {
+		ci := &canonImputation{Sets: im.Sets, Iterations: im.Iterations, Seed: im.Seed, ConvergenceTable: im.ConvergenceTable}
+		for _, m := range im.Models {
+			if ci.ColumnModels == nil {
+				ci.ColumnModels = map[string]string{}
+			}
+			ci.ColumnModels[m.Column] = m.Method.String()
+		}
+		c.Data.Imputation = ci
 	}
 	if p.Models.HasApproach(fit.Stage) {
 		c.Models.Direction = optional(p.Models.Direction)

@@ -19,6 +19,7 @@ func (d *decoder) check(p *Plan) {
 		}
 	}
 	d.checkDataOptions(p)
+	d.checkImputation(p)
 	d.checkApproaches(p)
 	d.checkPartial(p)
 	d.checkGroups(p)

@@ -4,6 +4,7 @@ import (
 	"path/filepath"
 
 	"ordplan/runner/data"
+	"ordplan/runner/impute/chained"
 
 	"gopkg.in/yaml.v3"
 )
@@ -50,6 +51,62 @@ func (d *decoder) decodeData(n *yaml.Node, data *Data) {
 	if v := m.get("imputed"); v != nil {
 		data.Imputed = d.decodeImputed(v)
 	}
+	if v := m.get("imputation"); v != nil {
+		data.Imputation = d.decodeImputation(v)
+	} else if data.Imputes() {
+		data.Imputation = &Imputation{Sets: defaultImputedSets, Iterations: defaultImputationIterations}
+	}
+}
+
+// The defaults of data.imputation.
+const (
+	defaultImputedSets          = 20
+	defaultImputationIterations = 10
+)
+
+// decodeImputation reads data.imputation; the seed's default (the plan's
+// seed) is set by checkImputation.
+func (d *decoder) decodeImputation(n *yaml.Node) *Imputation {
+	im := &Imputation{Sets: defaultImputedSets, Iterations: defaultImputationIterations}
+	m := d.mapping(n, "data.imputation", imputationKeys)
+	if m == nil {
+		return im
+	}
+	if v := m.get("sets"); v != nil {
+		if k, ok := d.integer(v, m.at("sets")); ok {
+			if k < 2 {
+				d.errorf(deref(v), m.at("sets"), "pooling needs at least 2 imputed sets, got %d", k)
+			} else if k > 10000 {
+				d.errorf(deref(v), m.at("sets"), "at most 10000 imputed sets, got %d", k)
+			} else {
+				im.Sets = int(k)
+			}
+		}
+	}
+	if v := m.get("iterations"); v != nil {
+		if k, ok := d.integer(v, m.at("iterations")); ok {
+			if k < 1 || k > 10000 {
+				d.errorf(deref(v), m.at("iterations"), "want 1 to 10000 iterations, got %d", k)
+			} else {
+				im.Iterations = int(k)
+			}
+		}
+	}
+	if v := m.get("seed"); v != nil {
+		if s, ok := d.unsigned(v, m.at("seed")); ok {
+			im.Seed = s
+		}
+	}
+	if v := m.get("column_models"); v != nil {
+		d.eachColumn(v, m.at("column_models"), chained.OrList(), func(k, v *yaml.Node, path string) {
+			if w, ok := d.word(v, path, "imputation model", chained.PlanWords()); ok {
+				meth, _ := chained.MethodWords.Parse(w)
+				im.Models = append(im.Models, ColumnModel{Column: k.Value, Method: meth, Key: path})
+			}
+		})
+	}
+	m.boolean("convergence_table", &im.ConvergenceTable)
+	return im
 }
 
 var (

@@ -7,6 +7,7 @@ import (
 
 	"ordplan/runner/data"
 	"ordplan/runner/fit"
+	"ordplan/runner/impute/chained"
 )
 
 // Key describes one key of a plan: what it holds, its default and allowed
@@ -79,7 +80,7 @@ var Spec = mkey("", "An analysis plan.",
 	k("seed", KindInteger, "Seed of everything drawn at random (random starts of constrained fits).").dflt("1"),
 	mkey("data", "Where the observations are and how to read them.",
 		k("file", KindText, "The data file, relative to the plan's folder: CSV text, an .xlsx workbook (*.xlsx) or a flat Parquet file (*.parquet).").req(),
-		k("missing", KindWord, "Rows with a missing value: drop them (counted in the report) or refuse to run.").words(missingWords).dflt("drop"),
+		k("missing", KindWord, "Rows with a missing value: drop them (counted in the report), refuse to run, or impute the outcome and the columns the terms read by chained equations (data.imputation) and pool the analyses of the imputed sets by Rubin's rules.").words(missingWords).dflt("drop"),
 		k("missing_values", KindNames, "Cell texts that mean a missing value.").dflt(missingDefault()),
 		k("delimiter", KindWord, "The character between the fields of the CSV file: comma, semicolon or tab (ordplan check suggests one when the header looks different). The file must be UTF-8 text. The new rows of inference.predict are read with the same delimiter and decimal mark.").words(data.DelimiterWords).dflt("comma"),
 		k("decimal", KindWord, "The decimal mark of the file's numbers: point (1.5) or comma (1,5; usually with delimiter: semicolon). Numbers carry no thousands separators.").words(data.DecimalWords).dflt("point"),
@@ -93,6 +94,13 @@ var Spec = mkey("", "An analysis plan.",
 			k("file", KindText, "The stacked file of imputed sets, relative to the plan's folder."),
 			k("column", KindName, "Its imputation-number column: 1..m without gaps; rows numbered 0 (the original data) are skipped."),
 			k("files", KindNames, "Or one file per imputed set (at least two), with the same columns and rows."),
+		),
+		mkey("imputation", "With missing: impute, how the program imputes: chained equations over each outcome and the raw columns its terms read (transformations, splines and interactions are computed afterwards from the imputed columns).",
+			k("sets", KindInteger, "The number of imputed sets (at least 2).").dflt("20").atLeast(2),
+			k("iterations", KindInteger, "Cycles through the incomplete columns before a set is taken (at least 1).").dflt("10").atLeast(1),
+			k("seed", KindInteger, "Seed of the imputations (each set has its own stream from it).").dflt("the plan's seed"),
+			k("column_models", KindMap, "The imputation model of a column, when not its default: mean_matching (predictive mean matching, numeric default), normal_draw (numeric), logistic (two levels, default), multinomial (unordered levels, default), ordinal (cumulative logit, ordered levels and outcomes, default).").keys(k("", KindWord, "The model.").words(chained.PlanWords())),
+			k("convergence_table", KindBoolean, "Show in the report the mean and SD of each column's imputed values after every iteration.").dflt("false"),
 		),
 	).req(),
 	k("outcomes", KindList, "The ordinal outcomes, each analysed on its own.").req().item(mkey("", "One outcome.",

@@ -6,6 +6,7 @@ import (
 	"ordplan/runner/data"
 	"ordplan/runner/design"
 	"ordplan/runner/fit"
+	"ordplan/runner/impute/chained"
 )
 
 // Plan is a resolved analysis plan.
@@ -41,7 +42,7 @@ type Plan struct {
 type Data struct {
 	File          string   // required; as written in the plan
 	Path          string   // File resolved against Plan.Dir
-	Missing       string   // "drop" (default) or "refuse"
+	Missing       string   // "drop" (default), "refuse" or "impute" (MissingImpute)
 	MissingValues []string // nil = reader default; empty = nothing counts as missing
 	Delimiter     string   // "comma" (default), "semicolon" or "tab"
 	Decimal       string   // decimal mark: "point" (default) or "comma"
@@ -54,6 +55,41 @@ type Data struct {
 	// Imputed names multiply imputed versions of the data (nil: none):
 	// File then holds the original data with its missing values.
 	Imputed *Imputed
+	// Imputation says how to impute with Missing "impute" (nil otherwise).
+	Imputation *Imputation
+}
+
+// MissingImpute is the data.missing word of imputation by chained equations.
+const MissingImpute = "impute"
+
+// Imputes reports whether the program imputes the missing values itself.
+func (d Data) Imputes() bool { return d.Missing == MissingImpute }
+
+// Imputation is how the program imputes missing values (data.imputation).
+type Imputation struct {
+	Sets       int    // default 20
+	Iterations int    // default 10
+	Seed       uint64 // default: the plan's seed
+	// Models gives columns their imputation model, in the plan's order.
+	Models           []ColumnModel
+	ConvergenceTable bool
+}
+
+// ColumnModel is one column's imputation model, as the plan names it.
+type ColumnModel struct {
+	Column string
+	Method chained.Method
+	Key    string // its plan key
+}
+
+// ModelOf gives the model the plan names for a column (chained.Default: none).
+func (im *Imputation) ModelOf(col string) chained.Method {
+	for _, m := range im.Models {
+		if m.Column == col {
+			return m.Method
+		}
+	}
+	return chained.Default
 }
 
 // Imputed is a set of multiply imputed data sets: one stacked file with an

@@ -17,7 +17,7 @@ var (
 	directionWords    = []string{"forward", "backward"}
 	criterionWords    = []string{"aic", "bic", "tic"}
 	againstWords      = []string{AgainstLeast, AgainstNext, AgainstEach}
-	missingWords      = []string{"drop", "refuse"}
+	missingWords      = []string{"drop", "refuse", MissingImpute}
 	weightKindWords   = []string{"frequency", "sampling"}
 	selectMethodWords = []string{"stepwise"}
 	ruleKindWords     = []string{
@@ -52,6 +52,7 @@ var (
 	topKeys     = keysAt("")
 	dataKeys    = keysAt("data")
 	imputedKeys = keysAt("data.imputed")
+	imputationKeys = keysAt("data.imputation")
 	outcomeKeys = keysAt("outcomes")
 	modelsKeys  = keysAt("models")
 	partialKeys = keysAt("models.partial")

@@ -232,8 +232,11 @@ func writeImputation(d *doc, or *runner.OutcomeResult) {
 	}
 	d.h(3, "Multiple imputation")
 	src := fmt.Sprintf("stacked in `%s` by the imputation number in column `%s`", im.Files[0], im.Column)
-	if im.Source == "files" {
+	switch im.Source {
+	case "files":
 		src = "one file each: `" + strings.Join(im.Files, "`, `") + "`"
+	case "chained":
+		src = "imputed by this run from `" + im.Files[0] + "`, as described below"
 	}
 	d.p("Every model was fitted on each of the %d imputed data sets (%s; %d rows each) and the fits were pooled by Rubin's rules (Rubin 1987): the estimate is the mean over the sets, its variance the mean within-set variance plus (1 + 1/%d) times the between-set variance. The estimates tables show the pooled estimates with their total standard errors and normal-based intervals; the table below adds the degrees of freedom of Barnard and Rubin (1999) for t-based inference, with the complete-data degrees of freedom taken as the observations less the parameters. Likelihood-ratio tests are pooled by the D3 statistic (Meng and Rubin 1992), Wald tests (of parallel lines and of the plan's hypotheses) by D1 (Li, Raghunathan and Rubin 1991); both are F tests on k and v degrees of freedom, shown in the test tables as k F with their F p-values. The Brant test is pooled by D1 too, from the binary logits' stacked slopes and their joint covariance in each set; score and Wolfe-Gould tests, known only by their chi-square statistics, by D2 (Li, Meng, Raghunathan and Rubin 1991), which is less powerful and only approximately calibrated. The plan's test rules use these pooled tests. The chosen model's marginal effects and its predictions for new rows are computed on each imputed set with that set's fit and rows, and pooled quantity by quantity by the same rules, with t-based intervals. Log-likelihoods, AIC and BIC are means over the imputed sets: they are not the likelihood of one model, and rules on AIC or BIC compare these means.",
 		im.M, src, im.Rows, im.M)
@@ -254,6 +257,10 @@ func writeImputation(d *doc, or *runner.OutcomeResult) {
 		}
 		d.p("The pooled estimates of %s with the within-set and between-set standard deviations, the total standard error, the degrees of freedom, the relative increase in variance due to missing values and the fraction of missing information. A fraction of missing information well above the share of incomplete rows, or degrees of freedom below about 10, say that the number of imputed sets (%d) is too small for stable p-values.", f.ID, im.M)
 		d.captioned("Pooling of "+f.ID).table([]string{"Parameter", "Estimate", "Within SD", "Between SD", "SE", "df", "RIV", "FMI"}, rows)
+	}
+	if im.Chained != nil {
+		writeChained(d, im.Chained, im.Rows)
+		return
 	}
 	d.p("Multiple imputation assumes that the values are missing at random given the variables used to impute them: whether a value is missing may depend on what was observed, not on the missing value itself. The imputation model must include the outcome and every term of these models (their transformations and interactions too); otherwise the pooled effects are biased towards zero. The imputed sets were made outside this run, and their imputation model is not checked here.")
 }

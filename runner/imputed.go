@@ -19,7 +19,7 @@ import (
 // ImputedRun records how an outcome was analysed on multiply imputed data.
 type ImputedRun struct {
 	M      int      // number of imputed sets
-	Source string   // "stacked" or "files"
+	Source string   // "stacked", "files" or "chained" (imputed by the program)
 	Files  []string // the file(s) as the plan names them
 	Column string   // imputation-number column (stacked)
 	Rows   int      // rows used in each set
@@ -29,6 +29,8 @@ type ImputedRun struct {
 	Sets []*fit.Data     `json:"-"`
 	Data []*data.Dataset `json:"-"`
 	Fits [][]*FitEntry   `json:"-"`
+	// Chained says how the program imputed the sets (Source "chained").
+	Chained *ChainedRecord `json:"-"`
 	// brant is the Brant construction of every set, made once.
 	brant *pooledBrant
 }
@@ -100,19 +102,30 @@ func imputedSets(p *plan.Plan, r Reading) (*ImputedRun, []*data.Dataset, *design
 	}
 	run.Rows = sets[0].N
 	run.Data = sets
+	dz, fds, err := designSets(spec, sets)
+	if err != nil {
+		return nil, nil, nil, fmt.Errorf("%s: %v (outcome %q)", p.Path, err, r.Outcome)
+	}
+	run.Sets = fds
+	return run, sets, dz, nil
+}
+
+// designSets builds the design on the first imputed set, freezing its
+// constants (centring, knots), and the fit inputs of every set with it.
+func designSets(spec design.Spec, sets []*data.Dataset) (*design.Design, []*fit.Data, error) {
 	dz, d0, err := buildDesign(spec, sets[0])
 	if err != nil {
-		return nil, nil, nil, fmt.Errorf("%s: %v (imputed set 1, outcome %q)", p.Path, err, r.Outcome)
+		return nil, nil, fmt.Errorf("%v (imputed set 1)", err)
 	}
-	run.Sets = []*fit.Data{d0}
+	out := []*fit.Data{d0}
 	for k, ds := range sets[1:] {
 		X, i, err := dz.Matrix(ds.X, ds.N)
 		if err != nil {
-			return nil, nil, nil, fmt.Errorf("%s: imputed set %d, data line %d: %v", p.Path, k+2, ds.Lines[i], err)
+			return nil, nil, fmt.Errorf("imputed set %d, data line %d: %v", k+2, ds.Lines[i], err)
 		}
-		run.Sets = append(run.Sets, &fit.Data{Y: ds.Y, J: len(ds.Categories), X: X, Predictors: dz.Columns, Categories: ds.Categories, Weights: ds.Weights, Offset: ds.Offset})
+		out = append(out, &fit.Data{Y: ds.Y, J: len(ds.Categories), X: X, Predictors: dz.Columns, Categories: ds.Categories, Weights: ds.Weights, Offset: ds.Offset})
 	}
-	return run, sets, dz, nil
+	return dz, out, nil
 }
 
 // imputationNumbers reads the imputation-number column of a stacked file
@@ -391,22 +404,41 @@ func fTest(kind fit.TestKind, t impute.FTest, llr, llf float64) fit.Test {
 // grid is fitted on every imputed set and pooled, the tests are pooled
 // (D3, D1), and the rules run on the pooled fits.
 func runImputedOutcome(p *plan.Plan, an *Analysis, r Reading, oc plan.Outcome, opt Options) (*OutcomeResult, error) {
+	if opt.Executor != nil && p.Data.Imputes() {
+		return nil, fmt.Errorf("%s: data.missing: impute: imputation by chained equations and the analysis of its imputed sets run on this machine only; run without --queue", p.Path)
+	}
 	if opt.Executor != nil {
 		return nil, fmt.Errorf("%s: data.imputed: plans on imputed data run on this machine only; run without --queue", p.Path)
 	}
-	// The original file: its missing values are described in the report.
-	orig, err := data.Load(an.DataPath, r.Options)
-	if err != nil {
-		return nil, fmt.Errorf("%s (plan %s, outcome %q)", err, p.Path, oc.Column)
+	var run *ImputedRun
+	var sets []*data.Dataset
+	var dz *design.Design
+	var err error
+	if p.Data.Imputes() {
+		// The sets keep the original data's missing-value table.
+		run, sets, dz, err = chainedSets(p, an, r, opt)
+	} else {
+		run, sets, dz, err = imputedSets(p, r)
 	}
-	run, sets, dz, err := imputedSets(p, r)
 	if err != nil {
 		return nil, err
 	}
 	ds := *sets[0]
-	ds.Missing = orig.Missing
+	if !p.Data.Imputes() {
+		// The original file: its missing values are described in the report.
+		orig, err := data.Load(an.DataPath, r.Options)
+		if err != nil {
+			return nil, fmt.Errorf("%s (plan %s, outcome %q)", err, p.Path, oc.Column)
+		}
+		ds.Missing = orig.Missing
+	}
 	or := &OutcomeResult{Outcome: oc, Data: &ds, FitData: run.Sets[0], Design: dz, Terms: termsOf(dz), dataOptions: r.Options, Imputed: run}
 	or.Notes = append(or.Notes, dz.Notes...)
+	if run.Chained != nil {
+		for _, n := range run.Chained.Notes {
+			or.Notes = append(or.Notes, "Imputation: "+n)
+		}
+	}
 	for k, d := range run.Sets {
 		if err := fit.CheckDesign(d); err != nil {
 			return nil, fmt.Errorf("%s: outcome %q, imputed set %d: %v", p.Path, oc.Column, k+1, err)

@@ -84,6 +84,8 @@ type ImputationRecord struct {
 	Rows    int          `json:"rows_per_set"`
 	Method  string       `json:"method"`
 	Pooling []PoolingFit `json:"pooling"`
+	// Imputation says how the program made the sets (data.missing: impute).
+	Imputation *ChainedRecord `json:"imputation,omitempty"`
 }
 
 // PoolingFit is Rubin's rules for the parameters of one candidate.
@@ -110,7 +112,7 @@ func imputationRecord(or *OutcomeResult) *ImputationRecord {
 	if im == nil {
 		return nil
 	}
-	rec := &ImputationRecord{Sets: im.M, Source: im.Source, Files: im.Files, Column: im.Column, Rows: im.Rows,
+	rec := &ImputationRecord{Sets: im.M, Source: im.Source, Files: im.Files, Column: im.Column, Rows: im.Rows, Imputation: im.Chained,
 		Method:  "Rubin's rules with Barnard-Rubin degrees of freedom; likelihood-ratio tests pooled by D3, Wald tests by D1; log-likelihood, AIC and BIC are means over the sets",
 		Pooling: []PoolingFit{}}
 	for _, f := range or.Fits {
@@ -270,7 +272,9 @@ type RunRecord struct {
 	Data    DataRef   `json:"data"`
 	NewRows *DataRef  `json:"new_rows,omitempty"`
 	Imputed []DataRef `json:"imputed,omitempty"` // the imputed data files
-	Seed    uint64    `json:"seed"`
+	// Imputation: how the program imputed each outcome's data (data.missing: impute).
+	Imputation []*ChainedRecord `json:"imputation,omitempty"`
+	Seed       uint64           `json:"seed"`
 	// Registration is the plan compared with its lock (absent when not compared).
 	Registration *RegistrationRecord `json:"registration,omitempty"`
 	Outputs      map[string]string   `json:"outputs_sha256"`
@@ -287,6 +291,11 @@ func RunJSON(r *Result, files map[string][]byte) ([]byte, error) {
 		Plan: PlanRef{File: filepath.Base(r.Plan.Path), Title: r.Plan.Title, SHA256: r.Plan.Hash},
 		Data: DataRef{File: r.Plan.Data.File, SHA256: r.DataHash}, NewRows: newRowsRef(r), Imputed: r.Imputed, Seed: r.Plan.Seed, Outputs: map[string]string{}}
 	rec.Timestamp = r.Started
+	for _, or := range r.Outcomes {
+		if or.Imputed != nil && or.Imputed.Chained != nil {
+			rec.Imputation = append(rec.Imputation, or.Imputed.Chained)
+		}
+	}
 	rec.GoVersion, rec.Platform, rec.Command = r.GoVersion, r.Platform, r.Command
 	rec.Registration = registrationRecord(r.Registration)
 	for n, b := range files {

@@ -1,6 +1,7 @@
 package runner
 
 import (
+	"errors"
 	"fmt"
 	"runtime"
 	"slices"
@@ -78,8 +79,13 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 // partial sets, the grid of fits, the tests, the rules, overall fit and
 // inference.
 func runOutcome(p *plan.Plan, an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash string) (*OutcomeResult, error) {
-	if p.Data.Imputed != nil {
-		return runImputedOutcome(p, an, r, oc, opt)
+	var notes []string
+	if p.Data.Imputed != nil || p.Data.Imputes() {
+		or, err := runImputedOutcome(p, an, r, oc, opt)
+		if !errors.Is(err, errNothingToImpute) {
+			return or, err
+		}
+		notes = append(notes, "data.missing is impute, but no value of the columns this outcome uses is missing: nothing was imputed, and the data were analysed as they are")
 	}
 	ld, err := an.Load(r)
 	if err != nil {
@@ -87,7 +93,7 @@ func runOutcome(p *plan.Plan, an *Analysis, r Reading, oc plan.Outcome, opt Opti
 	}
 	ds, dz := ld.Data, ld.Design
 	or := &OutcomeResult{Outcome: oc, Data: ds, FitData: ld.FitData, Design: dz, Terms: termsOf(dz), dataOptions: r.Options}
-	or.Notes = append(or.Notes, dz.Notes...)
+	or.Notes = append(notes, dz.Notes...)
 	if err := an.CheckDesign(r, or.FitData); err != nil {
 		return nil, err
 	}

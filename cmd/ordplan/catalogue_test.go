@@ -319,6 +319,22 @@ func separationMissed(out, errs string, code int) string {
 // imputedFiles writes stacked imputed versions of d.csv: sets 1 and 3
 // (a gap), set 1 only, set 2 one row short, set 2 with a missing value,
 // a fractional imputation number, and a file with other columns.
+// allMissing writes allmiss.csv: d.csv with column b empty in every row.
+func allMissing(t *testing.T, dir, id string) {
+	t.Helper()
+	b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+	for i := 1; i < len(lines); i++ {
+		f := strings.Split(lines[i], ",")
+		f[2] = ""
+		lines[i] = strings.Join(f, ",")
+	}
+	os.WriteFile(filepath.Join(dir, "allmiss.csv"), []byte(strings.Join(lines, "\n")+"\n"), 0o644)
+}
+
 func imputedFiles(t *testing.T, dir, id string) {
 	t.Helper()
 	b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
@@ -367,7 +383,7 @@ func catalogue(dir string) (items []badInput) {
 		{id: "P1", name: "unknown key", args: []string{"check"}, plan: edit("predictors:", "predictorz: [a]\npredictors:"), code: 1,
 			want: []string{`P1.yaml:6:1: predictorz: unknown key "predictorz" (allowed: version, title, seed, data, outcomes, subset, categorical, predictors, models, tests, rules, covariance, report, inference`}},
 		{id: "P2", name: "unknown nested key", args: []string{"check"}, plan: edit("  file: d.csv\n", "  file: d.csv\n  colour: red\n"), code: 1,
-			want: []string{`P2.yaml:4:3: data.colour: unknown key "colour" (allowed: file, missing, missing_values, delimiter, decimal, sheet, header_row, weights, weight_kind, offset, cluster, imputed)`}},
+			want: []string{`P2.yaml:4:3: data.colour: unknown key "colour" (allowed: file, missing, missing_values, delimiter, decimal, sheet, header_row, weights, weight_kind, offset, cluster, imputed, imputation)`}},
 		{id: "P3", name: "wrong type: a number for a list", args: []string{"check"}, plan: edit("predictors: [a, b]", "predictors: 3"), code: 1,
 			want: []string{`P3.yaml:6:13: predictors: want a list, got number 3`}},
 		{id: "P4", name: "wrong type: text for a number", args: []string{"check"}, plan: edit("{by: aic}", "{by: aic, margin: wide}"), code: 1,
@@ -446,6 +462,40 @@ func catalogue(dir string) (items []badInput) {
 		{id: "I7", name: "imputation number that is not a whole number", args: []string{"run"}, setup: imputedFiles,
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp-frac.csv, column: imp}\n"), code: 1,
 			want: []string{`imp-frac.csv:2: column imp: imputation number "1.5" is not a whole number 0 or more (0 marks the original data)`}},
+
+		// Imputation by chained equations (data.missing: impute).
+		{id: "I8", name: "impute with nothing missing", args: []string{"run"},
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  missing: impute\n"), code: 0,
+			check: func(t *testing.T, dir, out, errs string) {
+				b, err := os.ReadFile(filepath.Join(dir, "I8-out", "report.md"))
+				if err != nil || !strings.Contains(string(b), "data.missing is impute, but no value of the columns this outcome uses is missing: nothing was imputed, and the data were analysed as they are") {
+					t.Errorf("report.md lacks the note (%v)", err)
+				}
+			}},
+		{id: "I9", name: "impute a column missing in every row", args: []string{"run"}, setup: allMissing,
+			plan: edit("  file: d.csv\n", "  file: allmiss.csv\n  missing: impute\n"), code: 1,
+			want: []string{`data.missing: impute, outcome "y": column b is missing in all 120 rows: there is nothing to impute it from (drop it from the plan, or supply its values)`}},
+		{id: "I10", name: "fewer than two imputed sets", args: []string{"check"},
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  missing: impute\n  imputation: {sets: 1}\n"), code: 1,
+			want: []string{`data.imputation.sets: pooling needs at least 2 imputed sets, got 1`}},
+		{id: "I11", name: "no iteration", args: []string{"check"},
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  missing: impute\n  imputation: {iterations: 0}\n"), code: 1,
+			want: []string{`data.imputation.iterations: want 1 to 10000 iterations, got 0`}},
+		{id: "I12", name: "imputation model of a column not imputed", args: []string{"check"},
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  missing: impute\n  imputation: {column_models: {c: mean_matching}}\n"), code: 1,
+			want: []string{`data.imputation.column_models.c: "c" is not an imputed column; the imputed columns are the outcomes and the columns the terms read: y, a, b`}},
+		{id: "I13", name: "imputation model of another kind of column", args: []string{"check"},
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  missing: impute\n  imputation: {column_models: {a: logistic}}\n"), code: 1,
+			want: []string{`data.imputation.column_models.a: logistic imputes a column with two levels; this column is numeric`}},
+		{id: "I14", name: "impute and imputed sets", args: []string{"check"},
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  missing: impute\n  imputed: {files: [d.csv, full.csv]}\n"), code: 1,
+			want: []string{`data.missing: impute makes the imputed sets, while data.imputed names sets made elsewhere; give one or the other`}},
+		{id: "I15", name: "impute with case weights", args: []string{"check"},
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  missing: impute\n  weights: c\n"), code: 1,
+			want: []string{`data.weights: imputation by chained equations (data.missing: impute) does not take case weights; impute elsewhere and name the sets under data.imputed, or remove data.weights`}},
+		{id: "I16", name: "imputation settings without impute", args: []string{"check"},
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputation: {sets: 5}\n"), code: 1,
+			want: []string{`data.imputation: is used only with data.missing: impute (data.missing is "drop")`}},
 
 		// Data files.
 		{id: "D1", name: "empty file", args: fitArgs(d("empty.csv"), "--predictors", "a,b"), code: 1,

@@ -31,7 +31,17 @@ func newProgress(w io.Writer, live bool, now func() time.Time) *progress {
 }
 
 // Fitted implements runner.Progress.
-func (p *progress) Fitted(outcome, id string, done, total int) {
+func (p *progress) Fitted(outcome, id string, done, total int) { p.step(outcome, "fits", done, total) }
+
+// Imputed implements runner.ImputationProgress: the imputed sets of an
+// outcome made so far.
+func (p *progress) Imputed(outcome string, done, total int) {
+	p.step(outcome+", imputation", "imputed sets", done, total)
+}
+
+// step shows done of total things of a stage (an outcome's fits or
+// imputed sets).
+func (p *progress) step(outcome, things string, done, total int) {
 	p.mu.Lock()
 	defer p.mu.Unlock()
 	t := p.now()
@@ -42,7 +52,7 @@ func (p *progress) Fitted(outcome, id string, done, total int) {
 		p.outcome = outcome
 	}
 	elapsed := t.Sub(p.start)
-	line := fmt.Sprintf("%s: %d of %d fits, %s elapsed", outcome, done, total, roundDur(elapsed))
+	line := fmt.Sprintf("%s: %d of %d %s, %s elapsed", outcome, done, total, things, roundDur(elapsed))
 	if done < total && done > 0 {
 		left := time.Duration(float64(elapsed) * float64(total-done) / float64(done))
 		line += ", about " + roundDur(left) + " left"

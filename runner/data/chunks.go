@@ -244,6 +244,7 @@ func (a *arrays) join(out *Dataset, t *rowTally, chunks []chunk) {
 		}
 		w += n
 		out.RowsRead += c.d.RowsRead
+		out.Incomplete += c.d.Incomplete
 		out.Cluster = append(out.Cluster, c.d.Cluster...)
 		t.join(c.t)
 	}

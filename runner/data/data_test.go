@@ -2,6 +2,7 @@ package data
 
 import (
 	"errors"
+	"math"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -312,5 +313,30 @@ func TestLoadRows(t *testing.T) {
 	}
 	if _, err := LoadRows(p, []string{"a", "c"}, "", nil); err == nil || !strings.Contains(err.Error(), `column "c": column not found`) {
 		t.Fatalf("%v", err)
+	}
+}
+
+// TestKeepIncomplete: for imputation, rows missing only outcome or
+// predictor values are kept (NaN, outcome -1) and described by the same
+// missing-value table; rows missing a weight are still dropped.
+func TestKeepIncomplete(t *testing.T) {
+	in := "y,a,b,w\n1,,2,1\n,,,1\n2,1,,1\n1,,3,1\n2,5,6,1\n1,7,8,1\nNA,1,1,1\n3,,1,1\n2,2,2,\n"
+	d, err := Read(strings.NewReader(in), "t.csv", Options{Outcome: "y", Predictors: []string{"a", "b"}, Weights: "w", KeepIncomplete: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d.N != 8 || d.Incomplete != 6 || d.RowsDropped != 1 || !reflect.DeepEqual(d.Categories, []string{"1", "2", "3"}) {
+		t.Fatalf("N %d incomplete %d dropped %d categories %v", d.N, d.Incomplete, d.RowsDropped, d.Categories)
+	}
+	if !reflect.DeepEqual(d.Y, []int{0, -1, 1, 0, 1, 0, -1, 2}) || !math.IsNaN(d.X[0]) || d.X[1] != 2 || !math.IsNaN(d.X[5]) {
+		t.Errorf("Y %v X %v", d.Y, d.X)
+	}
+	if !reflect.DeepEqual(d.Counts, []float64{3, 2, 1}) {
+		t.Errorf("counts %v", d.Counts)
+	}
+	mt := d.Missing
+	if mt.Rows != 9 || !reflect.DeepEqual(mt.ByColumn, []int{2, 4, 2, 1}) ||
+		!reflect.DeepEqual(mt.ByCategory[2], CategoryMissing{Category: "3", Rows: 1, ByColumn: []int{0, 1, 0, 0}, Incomplete: 1}) {
+		t.Errorf("missing table %+v", mt)
 	}
 }

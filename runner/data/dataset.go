@@ -34,6 +34,9 @@ type Dataset struct {
 	Offset      []float64 // nil when none
 	Cluster     []string  // nil when none
 	RowsRead    int       // data rows in the file
+	// Incomplete counts the kept rows with a missing outcome or predictor
+	// (Options.KeepIncomplete).
+	Incomplete int
 	RowsDropped int
 	// Dropped lists rows dropped for missing values per column. A row is
 	// counted once, under the first used column (outcome, predictors,

@@ -27,6 +27,11 @@ type Options struct {
 	// Refuse makes a missing value in a used column an error instead of a
 	// reason to drop the row.
 	Refuse bool
+	// KeepIncomplete keeps rows whose missing values are all in the
+	// outcome or predictor columns, for imputation: a missing predictor is
+	// NaN in X, a missing outcome -1 in Y (Dataset.Incomplete counts such
+	// rows). Rows missing a weight, offset or cluster are dropped as usual.
+	KeepIncomplete bool
 	// MissingTokens are the cell values (after trimming spaces) that mean
 	// missing; nil means DefaultMissing.
 	MissingTokens []string

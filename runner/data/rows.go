@@ -2,6 +2,7 @@ package data
 
 import (
 	"io"
+	"math"
 	"slices"
 	"strconv"
 	"strings"
@@ -65,6 +66,14 @@ func (r *reader) record(t *rowTally, d *Dataset, rec []string) error {
 // settle keeps a parsed row, or counts it as incomplete or of zero weight.
 func (r *reader) settle(t *rowTally, d *Dataset, row cells) {
 	switch {
+	case row.miss >= 0 && r.keepsIncomplete(t):
+		t.countIncomplete(row)
+		t.drops[row.miss]--
+		d.Incomplete++
+		if t.pat[0] == 'x' {
+			row.y = -1
+		}
+		r.keepRow(t, d, row)
 	case row.miss >= 0:
 		t.countIncomplete(row)
 	case row.w == 0:
@@ -200,6 +209,9 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 				row.miss = ci
 			}
 			t.pat[ci] = 'x'
+			if c.role == rolePredictor {
+				t.xs[c.pos] = math.NaN()
+			}
 			continue
 		}
 		var msg string
@@ -254,6 +266,20 @@ func (t *rowTally) intern(s string) string {
 	return c
 }
 
+// keepsIncomplete reports whether the current row, which has a missing
+// value, is kept for imputation: only its outcome or predictors miss.
+func (r *reader) keepsIncomplete(t *rowTally) bool {
+	if !r.opt.KeepIncomplete {
+		return false
+	}
+	for ci, c := range r.cols {
+		if t.pat[ci] == 'x' && c.role != roleOutcome && c.role != rolePredictor {
+			return false
+		}
+	}
+	return true
+}
+
 // countIncomplete counts a row with a missing value: under its first
 // missing column, under its pattern, and (when its outcome is present)
 // under its outcome value for each column it misses.
@@ -284,7 +310,7 @@ func (r *reader) keepRow(t *rowTally, d *Dataset, row cells) {
 		if len(t.levelSeen) == 0 {
 			break
 		}
-		if c.role == rolePredictor && t.levelSeen[c.name] != nil {
+		if c.role == rolePredictor && t.levelSeen[c.name] != nil && !math.IsNaN(t.xs[c.pos]) {
 			t.levelSeen[c.name][int(t.xs[c.pos])] += row.w
 		}
 	}
@@ -373,10 +399,12 @@ func (t *MissingTable) byCategory(cols []usedCol, d *Dataset, catMiss map[string
 		}
 	}
 	kept := make([]int, len(d.Categories))
-	for _, y := range d.Y {
-		kept[y]++
+	for i, y := range d.Y {
+		if y >= 0 && !slices.ContainsFunc(d.X[i*d.K:(i+1)*d.K], math.IsNaN) {
+			kept[y]++
+		}
 	}
-	t.Rows = d.N
+	t.Rows = d.N - d.Incomplete
 	for _, p := range t.Patterns {
 		t.Rows += p.Rows
 	}
@@ -408,11 +436,18 @@ func (t *MissingTable) byCategory(cols []usedCol, d *Dataset, catMiss map[string
 // codeCategories sets y to the index of each code among the distinct codes,
 // sorted numerically, and returns their decimal labels.
 func codeCategories(codes []int64, y []int) []string {
-	distinct := slices.Clone(codes)
+	var distinct []int64
+	for i, c := range codes {
+		if y[i] >= 0 {
+			distinct = append(distinct, c)
+		}
+	}
 	slices.Sort(distinct)
 	distinct = slices.Compact(distinct)
 	for i, c := range codes {
-		y[i], _ = slices.BinarySearch(distinct, c)
+		if y[i] >= 0 {
+			y[i], _ = slices.BinarySearch(distinct, c)
+		}
 	}
 	labels := make([]string, len(distinct))
 	for i, c := range distinct {
@@ -426,6 +461,9 @@ func codeCategories(codes []int64, y []int) []string {
 func (r *reader) tally(d *Dataset) error {
 	d.Counts = make([]float64, len(d.Categories))
 	for i, y := range d.Y {
+		if y < 0 {
+			continue
+		}
 		if d.Weights != nil {
 			d.Counts[y] += d.Weights[i]
 		} else {

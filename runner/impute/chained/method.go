@@ -39,6 +39,9 @@ var MethodWords = words.New[Method]("imputation model", "default", "mean_matchin
 // PlanWords are the words a plan may give a column (every word but default).
 func PlanWords() []string { return MethodWords.Names()[1:] }
 
+// OrList writes the plan's words as "a, b or c".
+func OrList() string { return words.OrList(PlanWords()) }
+
 func (m Method) String() string { return MethodWords.Name(m) }
 
 // MarshalText writes the method's word.

@@ -1,0 +1,51 @@
+package render
+
+import (
+	"fmt"
+	"strings"
+
+	"ordplan/render/numfmt"
+	"ordplan/runner"
+	"ordplan/runner/impute/chained"
+)
+
+// modelWords describes an imputation model in the report.
+var modelWords = map[chained.Method]string{
+	chained.MeanMatching: "predictive mean matching (%d donors)",
+	chained.NormalDraw:   "draw from the normal linear model",
+	chained.Logistic:     "logistic regression",
+	chained.Multinomial:  "multinomial logit",
+	chained.Ordinal:      "cumulative logit, parallel slopes",
+}
+
+// writeChained states how this run imputed the data (data.missing:
+// impute): the method, the sets, iterations and seed, each column's model,
+// the notes of the fits, the convergence summary when asked, and what
+// imputation assumes.
+func writeChained(d *doc, ch *runner.ChainedRecord, rows int) {
+	d.p("The imputed sets were made by this run by chained equations (fully conditional specification; van Buuren 2018): %d sets, each after %d iterations through the incomplete columns, with seed %d (set s draws from its own stream, so the sets do not depend on the number of workers). Of the %d rows, %d (%s) had a missing value in the outcome or a predictor column and were imputed rather than dropped. Each incomplete column was imputed from a model of it given the outcome and every other column used, as main effects of the raw columns; its parameters were drawn from their approximate posterior for every imputation, so that the sets reflect the uncertainty of the imputation model. Columns were visited in the order %s (fewest missing values first).",
+		ch.Sets, ch.Iterations, ch.Seed, rows, ch.RowsIncomplete, sharePct(ch.RowsIncomplete, rows), "`"+strings.Join(ch.Visits, "`, `")+"`")
+	var tab [][]string
+	for _, m := range ch.Models {
+		w := modelWords[m.Method]
+		if m.Method == chained.MeanMatching {
+			w = fmt.Sprintf(w, ch.Donors)
+		}
+		tab = append(tab, []string{"`" + m.Column + "`", m.Kind, fmt.Sprint(m.Missing), sharePct(m.Missing, rows), w, strings.Join(m.Predictors, ", ")})
+	}
+	d.captioned("Imputation models").table([]string{"Column", "Kind", "Imputed", "Share", "Model", "Predictors"}, tab)
+	d.p("Transformations, polynomials, splines and interactions of the analysis were computed after imputation from the imputed columns (impute, then transform). The imputation models hold the columns as main effects only: effects of interactions and of nonlinear terms of imputed columns can be attenuated, more so the more values are missing.")
+	if len(ch.Notes) > 0 {
+		d.p("What the imputation models needed:")
+		d.list(ch.Notes)
+	}
+	if ch.ConvergenceTable {
+		var tr [][]string
+		for _, t := range ch.Trace {
+			tr = append(tr, []string{"`" + t.Column + "`", fmt.Sprint(t.Iteration), numfmt.Est(t.Mean), numfmt.Est(t.SD), numfmt.Est(t.SpreadMean)})
+		}
+		d.p("Convergence: after every iteration, the mean and SD of each column's imputed values (averaged over the sets; categorical columns as level indexes from 0) and the SD of the set means across sets. The values should wander without a trend over the last iterations; a trend calls for more iterations.")
+		d.captioned("Imputed values by iteration").table([]string{"Column", "Iteration", "Mean", "SD", "SD of set means"}, tr)
+	}
+	d.p("Multiple imputation assumes that the values are missing at random given the columns in the imputation models: whether a value is missing may depend on the outcome and the other columns observed, not on the missing value itself. That assumption cannot be checked from the data; if missingness depends on the unseen values (missing not at random), the pooled estimates can be biased, and a sensitivity analysis is needed.")
+}

@@ -1,0 +1,141 @@
+package runner
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"slices"
+
+	"ordplan/plan"
+	"ordplan/runner/data"
+	"ordplan/runner/design"
+	"ordplan/runner/impute/chained"
+)
+
+// ChainedRecord is how the program imputed an outcome's data (data.missing:
+// impute); run.json and decisions.json carry it.
+type ChainedRecord struct {
+	Outcome    string `json:"outcome"`
+	Method     string `json:"method"`
+	Sets       int    `json:"sets"`
+	Iterations int    `json:"iterations"`
+	Seed       uint64 `json:"seed"`
+	// Stream is the outcome's index: set s draws from the stream
+	// Stream<<32 xor s of the seed.
+	Stream           uint64               `json:"stream"`
+	Donors           int                  `json:"donors"`
+	RowsIncomplete   int                  `json:"rows_incomplete"`
+	Visits           []string             `json:"visits"`
+	Models           []chained.Model      `json:"models"`
+	Trace            []chained.TracePoint `json:"trace"`
+	Notes            []string             `json:"notes,omitempty"`
+	ConvergenceTable bool                 `json:"-"`
+}
+
+// chainedDonors is the number of donors of predictive mean matching.
+const chainedDonors = 5
+
+// errNothingToImpute: data.missing is impute but no used value is missing.
+var errNothingToImpute = errors.New("nothing to impute")
+
+// ImputationProgress, when a run's Progress also implements it, hears of
+// every imputed set made by chained equations (done of total sets).
+type ImputationProgress interface {
+	Imputed(outcome string, done, total int)
+}
+
+// chainedSets imputes an outcome's data by chained equations: the rows
+// with a missing outcome or predictor are kept, the outcome and the raw
+// columns of the terms (with the offset as a complete column) are imputed
+// data.imputation.sets times, and the imputed sets get the design frozen
+// on the first of them.
+func chainedSets(p *plan.Plan, a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Dataset, *design.Design, error) {
+	spec, dopt := r.Design, r.Options
+	dopt.Refuse, dopt.KeepIncomplete = false, true
+	ds, err := data.Load(a.DataPath, dopt)
+	if err != nil {
+		return nil, nil, nil, fmt.Errorf("%s (plan %s, outcome %q%s)", err, a.Source, r.Outcome, r.keyOf(err))
+	}
+	if err := a.Observed(r, ds); err != nil {
+		return nil, nil, nil, err
+	}
+	if ds.Incomplete == 0 {
+		return nil, nil, nil, errNothingToImpute
+	}
+	im := p.Data.Imputation
+	cols := chainedColumns(p, r.Outcome, spec, ds)
+	stream := uint64(slices.IndexFunc(p.Outcomes, func(o plan.Outcome) bool { return o.Column == r.Outcome }))
+	cfg := chained.Config{Sets: im.Sets, Iterations: im.Iterations, Seed: im.Seed, Stream: stream, Donors: chainedDonors, Workers: opt.Workers}
+	if ip, ok := opt.Progress.(ImputationProgress); ok {
+		cfg.Progress = func(done, total int) { ip.Imputed(r.Outcome, done, total) }
+	}
+	res, err := chained.Impute(cols, cfg)
+	if err != nil {
+		return nil, nil, nil, fmt.Errorf("%s: data.missing: impute, outcome %q: %v", p.Path, r.Outcome, err)
+	}
+	sets := make([]*data.Dataset, im.Sets)
+	for s, set := range res.Sets {
+		sets[s] = completed(ds, set, len(spec.Sources))
+	}
+	dz, fds, err := designSets(spec, sets)
+	if err != nil {
+		return nil, nil, nil, fmt.Errorf("%s: %v (outcome %q)", p.Path, err, r.Outcome)
+	}
+	run := &ImputedRun{M: im.Sets, Source: "chained", Files: []string{a.DataFile}, Rows: ds.N, Sets: fds, Data: sets,
+		Chained: &ChainedRecord{Outcome: r.Outcome, Method: "chained equations", Sets: im.Sets, Iterations: im.Iterations, Seed: im.Seed,
+			Stream: stream, Donors: chainedDonors, RowsIncomplete: ds.Incomplete, Visits: res.Visits, Models: res.Models, Trace: res.Trace,
+			Notes: res.Notes, ConvergenceTable: im.ConvergenceTable}}
+	return run, sets, dz, nil
+}
+
+// chainedColumns is the table to impute: the outcome (ordered), the raw
+// columns of the terms (categorical ones as level indexes), and the
+// offset.
+func chainedColumns(p *plan.Plan, outcome string, spec design.Spec, ds *data.Dataset) []chained.Column {
+	im := p.Data.Imputation
+	y := make([]float64, ds.N)
+	for i, v := range ds.Y {
+		y[i] = float64(v)
+		if v < 0 {
+			y[i] = math.NaN()
+		}
+	}
+	cols := []chained.Column{{Name: outcome, Kind: chained.Ordered, Levels: len(ds.Categories), Values: y, Method: im.ModelOf(outcome)}}
+	for k, s := range spec.Sources {
+		c := chained.Column{Name: s.Name, Values: make([]float64, ds.N), Method: im.ModelOf(s.Name)}
+		for i := range c.Values {
+			c.Values[i] = ds.X[i*ds.K+k]
+		}
+		if s.Cat != nil {
+			c.Kind, c.Levels = chained.Categorical, len(s.Cat.Levels)
+			if s.Cat.Ordered {
+				c.Kind = chained.Ordered
+			}
+		}
+		cols = append(cols, c)
+	}
+	if ds.Offset != nil {
+		cols = append(cols, chained.Column{Name: p.Data.Offset, Values: ds.Offset})
+	}
+	return cols
+}
+
+// completed is the data set ds with its outcome and predictors taken from
+// an imputed set (column 0 the outcome, then the K predictors).
+func completed(ds *data.Dataset, set [][]float64, K int) *data.Dataset {
+	c := *ds
+	c.Incomplete = 0
+	c.Y = make([]int, ds.N)
+	c.X = make([]float64, ds.N*ds.K)
+	for i := 0; i < ds.N; i++ {
+		c.Y[i] = int(set[0][i])
+		for k := 0; k < K; k++ {
+			c.X[i*ds.K+k] = set[1+k][i]
+		}
+	}
+	c.Counts = make([]float64, len(ds.Categories))
+	for _, y := range c.Y {
+		c.Counts[y]++
+	}
+	return &c
+}

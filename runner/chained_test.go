@@ -1,0 +1,173 @@
+package runner
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"ordplan/plan"
+	"ordplan/runner/fit"
+)
+
+// chainedFixture writes an invented survey (seeded): y in three ordered
+// categories from a cumulative logit in x (numeric) and g (three levels),
+// with x, g and y each missing in some rows (x more often in the top
+// category: missing at random given y), and a plan that imputes them.
+func chainedFixture(t *testing.T, imputation string) *plan.Plan {
+	t.Helper()
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(3, 5))
+	var b strings.Builder
+	b.WriteString("y,x,g\n")
+	for i := 0; i < 240; i++ {
+		x := rng.NormFloat64()
+		g := rng.IntN(3)
+		eta := 0.8*x + []float64{0, 0.5, -0.4}[g]
+		u := rng.Float64()
+		y := 1
+		for _, c := range []float64{-0.4, 0.9} {
+			if u > 1/(1+math.Exp(-(c-eta))) {
+				y++
+			}
+		}
+		xs, gs, ys := fmt.Sprintf("%.4f", x), []string{"a", "b", "c"}[g], fmt.Sprint(y)
+		if rng.Float64() < 0.1+0.15*float64(y-1) {
+			xs = ""
+		}
+		if rng.Float64() < 0.08 {
+			gs = "NA"
+		}
+		if rng.Float64() < 0.05 {
+			ys = ""
+		}
+		fmt.Fprintf(&b, "%s,%s,%s\n", ys, xs, gs)
+	}
+	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
+	src := `version: 1
+seed: 11
+data:
+  file: d.csv
+  missing: impute
+` + imputation + `
+outcomes: [{column: y}]
+categorical: {g: {levels: [a, b, c]}}
+predictors: [x, g, {name: lx, column: x, log: {shift: 10}}]
+models: {approaches: [cumulative], effects: [parallel, nonparallel]}
+tests: {parallel_lines: [lr, wald]}
+rules:
+  - choose: {by: bic}
+`
+	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644)
+	p, err := plan.Load(filepath.Join(dir, "p.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+// TestChainedRun: a plan with data.missing: impute imputes the outcome, a
+// numeric and a categorical column, fits every candidate on every set and
+// pools them; the derived term (a polynomial of x) is computed from the
+// imputed x; the record says how; and the decisions do not depend on the
+// number of workers.
+func TestChainedRun(t *testing.T) {
+	p := chainedFixture(t, "  imputation: {sets: 4, iterations: 3, column_models: {g: multinomial}}")
+	r1 := runPlan(t, p, 1)
+	or := r1.Outcomes[0]
+	im := or.Imputed
+	if im == nil || im.M != 4 || im.Source != "chained" || im.Chained == nil || im.Rows != 240 {
+		t.Fatalf("imputed run %+v", im)
+	}
+	ch := im.Chained
+	if ch.Seed != 11 || ch.Iterations != 3 || strings.Join(ch.Visits, " ") != "y g x" || len(ch.Trace) != 9 {
+		t.Errorf("record: seed %d, iterations %d, visits %v, %d trace points", ch.Seed, ch.Iterations, ch.Visits, len(ch.Trace))
+	}
+	want := map[string]string{"y": "ordinal", "x": "mean_matching", "g": "multinomial"}
+	for _, m := range ch.Models {
+		if m.Method.String() != want[m.Column] {
+			t.Errorf("%s imputed by %s, want %s", m.Column, m.Method, want[m.Column])
+		}
+	}
+	for s, d := range im.Sets {
+		if len(d.Y) != 240 {
+			t.Fatalf("set %d has %d rows", s+1, len(d.Y))
+		}
+		// lx is the logarithm of the imputed x plus 10.
+		K := len(d.Predictors)
+		if d.Predictors[0] != "x" || d.Predictors[3] != "lx" {
+			t.Fatalf("predictors %v", d.Predictors)
+		}
+		for i := 0; i < 240; i++ {
+			if want := math.Log(d.X[i*K] + 10); math.Abs(d.X[i*K+3]-want) > 1e-12 {
+				t.Fatalf("set %d row %d: lx = %g is not log(x + 10) = %g of the imputed x", s+1, i, d.X[i*K+3], want)
+			}
+		}
+	}
+	if mt := or.Data.Missing; mt == nil || mt.Rows != 240 || mt.ByColumn[1] == 0 || len(mt.ByCategory) != 3 {
+		t.Errorf("the missing values of the original data are not described: %+v", mt)
+	}
+	f := or.Find("cumulative/parallel/logit")
+	if !f.OK() || f.Pooled == nil {
+		t.Fatalf("not pooled: %+v", f)
+	}
+	if fmi := f.Pooled.FMI[2]; !(fmi > 0 && fmi < 1) { // x
+		t.Errorf("FMI of x %g", fmi)
+	}
+	r2 := runPlan(t, p, 3)
+	a, _ := MarshalStable(BuildDecisions(r1))
+	b, _ := MarshalStable(BuildDecisions(r2))
+	if string(a) != string(b) {
+		t.Error("1 and 3 workers give different decisions")
+	}
+	if !strings.Contains(string(a), `"visits": [`) {
+		t.Error("decisions.json does not carry the imputation record")
+	}
+}
+
+// TestChainedNothingMissing: with nothing missing the data are analysed as
+// they are, with a note.
+func TestChainedNothingMissing(t *testing.T) {
+	p := chainedFixture(t, "")
+	b, _ := os.ReadFile(p.Data.Path)
+	var out []string
+	for i, l := range strings.Split(strings.TrimSpace(string(b)), "\n") {
+		if i == 0 || !strings.Contains(","+l+",", ",,") && !strings.Contains(l, "NA") && !strings.HasPrefix(l, ",") {
+			out = append(out, l)
+		}
+	}
+	os.WriteFile(p.Data.Path, []byte(strings.Join(out, "\n")+"\n"), 0o644)
+	or := runPlan(t, p, 0).Outcomes[0]
+	if or.Imputed != nil || !strings.Contains(strings.Join(or.Notes, "\n"), "no value of the columns this outcome uses is missing: nothing was imputed") {
+		t.Errorf("imputed %v, notes %q", or.Imputed, or.Notes)
+	}
+}
+
+// noExecutor is a queue that must not be used.
+type noExecutor struct{}
+
+func (noExecutor) Execute([]Job) ([]*fit.Result, []error) { panic("used") }
+
+// TestChainedBadInput: a column missing in every row and a queue.
+func TestChainedBadInput(t *testing.T) {
+	p := chainedFixture(t, "")
+	if _, err := Run(p, Options{Executor: noExecutor{}}); err == nil || !strings.Contains(err.Error(), "data.missing: impute: imputation by chained equations and the analysis of its imputed sets run on this machine only; run without --queue") {
+		t.Errorf("queue: %v", err)
+	}
+	b, _ := os.ReadFile(p.Data.Path)
+	var out []string
+	for i, l := range strings.Split(strings.TrimSpace(string(b)), "\n") {
+		if i > 0 {
+			f := strings.Split(l, ",")
+			l = f[0] + ",," + f[2]
+		}
+		out = append(out, l)
+	}
+	os.WriteFile(p.Data.Path, []byte(strings.Join(out, "\n")+"\n"), 0o644)
+	if _, err := Run(p, Options{}); err == nil || !strings.Contains(err.Error(), `data.missing: impute, outcome "y": column x is missing in all 240 rows: there is nothing to impute it from`) {
+		t.Errorf("all missing: %v", err)
+	}
+}
