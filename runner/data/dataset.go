@@ -23,20 +23,20 @@ type LevelRef struct {
 // outcome coded as category indices and the predictors as a dense
 // row-major matrix.
 type Dataset struct {
-	File        string
-	Outcome     string
-	Categories  []string // J category labels, lowest first
-	Y           []int    // kept rows: category index 0..J-1
-	Predictors  []string
-	X           []float64 // kept rows, row-major N x K
-	N, K        int
-	Weights     []float64 // nil when no weights column
-	Offset      []float64 // nil when none
-	Cluster     []string  // nil when none
-	RowsRead    int       // data rows in the file
+	File       string
+	Outcome    string
+	Categories []string // J category labels, lowest first
+	Y          []int    // kept rows: category index 0..J-1
+	Predictors []string
+	X          []float64 // kept rows, row-major N x K
+	N, K       int
+	Weights    []float64 // nil when no weights column
+	Offset     []float64 // nil when none
+	Cluster    []string  // nil when none
+	RowsRead   int       // data rows in the file
 	// Incomplete counts the kept rows with a missing outcome or predictor
 	// (Options.KeepIncomplete).
-	Incomplete int
+	Incomplete  int
 	RowsDropped int
 	// Dropped lists rows dropped for missing values per column. A row is
 	// counted once, under the first used column (outcome, predictors,
