@@ -49,17 +49,17 @@ var (
 
 // Keys allowed in each mapping.
 var (
-	topKeys     = keysAt("")
-	dataKeys    = keysAt("data")
-	imputedKeys = keysAt("data.imputed")
+	topKeys        = keysAt("")
+	dataKeys       = keysAt("data")
+	imputedKeys    = keysAt("data.imputed")
 	imputationKeys = keysAt("data.imputation")
-	outcomeKeys = keysAt("outcomes")
-	modelsKeys  = keysAt("models")
-	partialKeys = keysAt("models.partial")
-	selectKeys  = keysAt("models.partial.select")
-	groupKeys   = keysAt("models.partial.groups")
-	testsKeys   = keysAt("tests")
-	reportKeys  = keysAt("report")
+	outcomeKeys    = keysAt("outcomes")
+	modelsKeys     = keysAt("models")
+	partialKeys    = keysAt("models.partial")
+	selectKeys     = keysAt("models.partial.select")
+	groupKeys      = keysAt("models.partial.groups")
+	testsKeys      = keysAt("tests")
+	reportKeys     = keysAt("report")
 )
 
 // orList renders ["a", "b", "c"] as "a, b or c".
