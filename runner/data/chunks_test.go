@@ -9,6 +9,8 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"github.com/parquet-go/parquet-go"
 )
 
 // withChunks runs f with chunks cut at size bytes and the given number of
@@ -366,6 +368,160 @@ func BenchmarkReadStream(b *testing.B) {
 	for b.Loop() {
 		if _, err := ReadStream(bytes.NewReader(in), "b.csv", benchOpt); err != nil {
 			b.Fatal(err)
+		}
+	}
+}
+
+// benchParquet is benchFile's rows as a flat Parquet file (int64 outcome,
+// double predictors).
+func benchParquet(b *testing.B, n int) []byte {
+	d, err := readBytes(benchFile(n), "b.csv", benchOpt)
+	if err != nil {
+		b.Fatal(err)
+	}
+	group := parquet.Group{"y": parquet.Leaf(parquet.Int64Type)}
+	for _, p := range benchOpt.Predictors {
+		group[p] = parquet.Leaf(parquet.DoubleType)
+	}
+	schema := parquet.NewSchema("rows", group)
+	var buf bytes.Buffer
+	w := parquet.NewWriter(&buf, schema)
+	pos := map[string]int{}
+	for k, p := range benchOpt.Predictors {
+		pos[p] = k
+	}
+	for i := 0; i < d.N; i++ {
+		var row parquet.Row
+		for ci, path := range schema.Columns() {
+			if path[0] == "y" {
+				row = append(row, parquet.Int64Value(int64(d.Y[i])).Level(0, 0, ci))
+			} else {
+				row = append(row, parquet.DoubleValue(d.X[i*d.K+pos[path[0]]]).Level(0, 0, ci))
+			}
+		}
+		if _, err := w.WriteRows([]parquet.Row{row}); err != nil {
+			b.Fatal(err)
+		}
+	}
+	if err := w.Close(); err != nil {
+		b.Fatal(err)
+	}
+	return buf.Bytes()
+}
+
+func BenchmarkReadParquet(b *testing.B) {
+	in := benchParquet(b, 100000)
+	b.SetBytes(int64(len(in)))
+	for b.Loop() {
+		if _, err := readBytes(in, "b.parquet", benchOpt); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// randomParquet writes a flat Parquet file of seeded random rows whose
+// columns take many kinds: y int64 codes (or text labels), a double (with
+// nulls, NaN, infinities, signed zeros), b int32, c text levels, f float,
+// t boolean, s numbers as text, g cluster text.
+func randomParquet(t *testing.T, rng *rand.Rand, rows int, labels, bad bool) []byte {
+	pick := func(good int, all ...string) string {
+		if bad && rng.IntN(rows) == 0 {
+			return all[rng.IntN(len(all))]
+		}
+		return all[rng.IntN(good)]
+	}
+	opt := func(n parquet.Node) parquet.Node { return parquet.Optional(n) }
+	ykind := parquet.Leaf(parquet.Int64Type)
+	if labels {
+		ykind = parquet.String()
+	}
+	schema := parquet.NewSchema("rows", parquet.Group{
+		"y": opt(ykind), "a": opt(parquet.Leaf(parquet.DoubleType)), "b": opt(parquet.Leaf(parquet.Int32Type)),
+		"c": opt(parquet.String()), "f": opt(parquet.Leaf(parquet.FloatType)), "t": opt(parquet.Leaf(parquet.BooleanType)),
+		"s": opt(parquet.String()), "g": opt(parquet.String()),
+	})
+	var buf bytes.Buffer
+	w := parquet.NewWriter(&buf, schema)
+	for i := 0; i < rows; i++ {
+		var row parquet.Row
+		for ci, path := range schema.Columns() {
+			var v parquet.Value
+			switch path[0] {
+			case "y":
+				if labels {
+					v = parquet.ValueOf(pick(4, "low", "mid", "high", " mid", "huge"))
+				} else {
+					v = parquet.Int64Value(int64(1 + rng.IntN(3)))
+				}
+			case "a":
+				x := rng.NormFloat64() * math.Pow(10, float64(rng.IntN(10)-5))
+				if rng.IntN(40) == 0 {
+					x = []float64{math.Copysign(0, -1), 1e300, 5e-324, -9, math.NaN(), math.Inf(1)}[rng.IntN(4)]
+				}
+				if bad && rng.IntN(rows) == 0 {
+					x = math.Inf(-1)
+				}
+				v = parquet.DoubleValue(x)
+			case "b":
+				v = parquet.Int32Value(int32(rng.IntN(2000) - 1000))
+			case "c":
+				v = parquet.ValueOf(pick(5, "p", "q", "r", "NA", " p", "z"))
+			case "f":
+				v = parquet.FloatValue(float32(rng.NormFloat64()))
+			case "t":
+				v = parquet.BooleanValue(rng.IntN(2) == 0)
+			case "s":
+				v = parquet.ValueOf(pick(4, "1.5", " 2 ", "-9", "NA", "x"))
+			case "g":
+				v = parquet.ValueOf([]string{"g1", "g2", "", "NA"}[rng.IntN(4)])
+			}
+			if rng.IntN(30) == 0 {
+				row = append(row, parquet.NullValue().Level(0, 0, ci))
+			} else {
+				row = append(row, v.Level(0, 1, ci))
+			}
+		}
+		if _, err := w.WriteRows([]parquet.Row{row}); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := w.Close(); err != nil {
+		t.Fatal(err)
+	}
+	return buf.Bytes()
+}
+
+// A Parquet file read from its values gives what reading the values'
+// texts record by record gives: data, counts and the first error.
+func TestParquetValuesReadLikeTexts(t *testing.T) {
+	rng := rand.New(rand.NewPCG(23, 5))
+	levels := map[string][]string{"c": {"p", "q", "r"}}
+	for trial := 0; trial < 40; trial++ {
+		labels := trial%2 == 1
+		in := randomParquet(t, rng, 1+rng.IntN(300), labels, trial%3 == 0)
+		opt := Options{Outcome: "y", Predictors: []string{"a", "b"}}
+		if labels {
+			opt.Categories = []string{"low", "mid", "high"}
+		}
+		switch trial % 6 {
+		case 1:
+			opt.Predictors = append(opt.Predictors, "c", "t")
+			opt.PredictorLevels = levels
+		case 2:
+			opt.Predictors = append(opt.Predictors, "f")
+		case 3:
+			opt.Weights, opt.Cluster = "t", "g"
+			opt.ColumnMissing = map[string][]string{"a": {"-9"}}
+		case 4:
+			opt.Offset = "s"
+		case 5:
+			opt.Keep = []Condition{{Column: "b", Op: ">", Number: -500}}
+			opt.Dialect.DecimalComma = trial%4 == 1
+		}
+		want, wantErr := ReadStream(bytes.NewReader(in), "t.parquet", opt)
+		got, err := Read(bytes.NewReader(in), "t.parquet", opt)
+		if msg := sameRead(want, wantErr, got, err); msg != "" {
+			t.Fatalf("trial %d: %s", trial, msg)
 		}
 	}
 }

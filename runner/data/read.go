@@ -75,6 +75,9 @@ func readBytes(raw []byte, name string, opt Options) (*Dataset, error) {
 	if err := r.header(cols); err != nil {
 		return nil, err
 	}
+	if cr, ok := r.cr.(*columnRecords); ok {
+		return r.columnRows(cr)
+	}
 	if cr, ok := r.cr.(*csv.Reader); ok {
 		body := int(cr.InputOffset())
 		if bytes.HasPrefix(raw, utf8BOM) {
@@ -101,8 +104,15 @@ func (r *reader) fail(line int, column, format string, args ...any) *Error {
 	return &Error{File: r.file, Line: line, Column: column, Msg: fmt.Sprintf(format, args...)}
 }
 
-// csvErr converts an error from the CSV reader.
+// csvErr converts an error from the CSV reader (or another records
+// source: its *Error gets the file's name).
 func (r *reader) csvErr(err error, rec []string) *Error {
+	var de *Error
+	if errors.As(err, &de) {
+		e := *de
+		e.File = r.file
+		return &e
+	}
 	var pe *csv.ParseError
 	if errors.As(err, &pe) {
 		if errors.Is(pe.Err, csv.ErrFieldCount) {
