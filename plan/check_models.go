@@ -51,9 +51,6 @@ func (d *decoder) checkPartial(p *Plan) {
 	if hasFree && hasSelect {
 		d.errAt("models.partial.select", "give either free or select, not both")
 	}
-	if hasSelect && (p.Data.Imputed != nil || p.Data.Imputes()) {
-		d.errAt("models.partial.select", "stepwise selection is not run on imputed data (each imputed set could select another partial set); list the partial set under models.partial.free")
-	}
 	if hasGroups && hasSelect && !hasFree {
 		d.errAt("models.partial.groups", "groups split a listed free set; they cannot be used with select")
 	}

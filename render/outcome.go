@@ -76,6 +76,9 @@ func writeFreeSets(d *doc, or *runner.OutcomeResult) {
 			d.p("Not computed: %s.", s.Result.Reason)
 			continue
 		}
+		if or.Imputed != nil {
+			d.p("On imputed data every model of the selection was fitted on each of the %d imputed sets and pooled by Rubin's rules, and each step reads pooled tests (Wald tests by D1, likelihood-ratio tests by D3; F tests shown with their F p-values); the log-likelihood is the mean over the sets. One partial set is selected for all imputed sets.", or.Imputed.M)
+		}
 		var rows [][]string
 		for _, st := range s.Result.Steps {
 			var parts []string
@@ -90,7 +93,7 @@ func writeFreeSets(d *doc, or *runner.OutcomeResult) {
 		}
 		d.captioned(fmt.Sprintf("Stepwise selection of the partial set, %s %s", s.Approach, s.Link)).table([]string{"Step", "Log-likelihood", "Tests of equal slopes", "Made parallel"}, rows)
 		if t := s.Result.FinalTest; t.OK {
-			d.p("Joint test that every predictor made parallel has equal slopes: chi2(%d) = %s, %s.", t.DF, numfmt.Stat(t.Chi2), numfmt.PText(t.P))
+			d.p("Joint test that every predictor made parallel has equal slopes: %s, %s.", runner.TestStatistic(t), numfmt.PText(t.P))
 		}
 	}
 }

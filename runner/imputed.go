@@ -217,42 +217,60 @@ func poolJobs(a *Analysis, sets []*data.Dataset, jobs []*FitEntry, run *ImputedR
 			}
 			continue
 		}
-		first := perSet[0][i].Result
-		pl, err := impute.Pool(sets, completeDF(first))
+		rs := make([]*fit.Result, run.M)
+		for k := range perSet {
+			rs[k] = perSet[k][i].Result
+		}
+		r, pl, err := poolResults(rs)
 		if err != nil {
 			e.Err = err.Error()
 			continue
 		}
-		r := *first
-		r.Estimates, r.Cov, r.StdErrors = pl.Estimate, pl.Total, pl.SE
-		var ll, aic, bic float64
-		for k := range perSet {
-			rk := perSet[k][i].Result
-			ll += rk.LogLik / float64(run.M)
-			aic += rk.AIC / float64(run.M)
-			bic += rk.BIC / float64(run.M)
-		}
-		r.LogLik, r.AIC, r.BIC = ll, aic, bic
-		r.Cutpoints = meanRows([][]float64{first.Cutpoints}, perSet, i, func(x *fit.Result) [][]float64 { return [][]float64{x.Cutpoints} })[0]
-		r.Effects = meanRows(first.Effects, perSet, i, func(x *fit.Result) [][]float64 { return x.Effects })
-		r.Phi = meanRows(first.Phi, perSet, i, func(x *fit.Result) [][]float64 { return x.Phi })
-		e.Result = &r
-		e.Pooled = pl
+		e.Result, e.Pooled = r, pl
 	}
 	return perSet
 }
 
+// poolResults pools the usable fits of one model on every imputed set:
+// the estimates and covariance by Rubin's rules, the log-likelihood, AIC
+// and BIC as means over the sets, and the derived tables (cutpoints,
+// effects, phi) as means too. The rest is set 1's.
+func poolResults(rs []*fit.Result) (*fit.Result, *impute.Pooled, error) {
+	sets := make([]impute.Set, len(rs))
+	for k, r := range rs {
+		sets[k] = impute.Set{Est: r.Estimates, Cov: r.Cov}
+	}
+	first := rs[0]
+	pl, err := impute.Pool(sets, completeDF(first))
+	if err != nil {
+		return nil, nil, err
+	}
+	r := *first
+	r.Estimates, r.Cov, r.StdErrors = pl.Estimate, pl.Total, pl.SE
+	m := float64(len(rs))
+	r.LogLik, r.AIC, r.BIC = 0, 0, 0
+	for _, rk := range rs {
+		r.LogLik += rk.LogLik / m
+		r.AIC += rk.AIC / m
+		r.BIC += rk.BIC / m
+	}
+	r.Cutpoints = meanRows([][]float64{first.Cutpoints}, rs, func(x *fit.Result) [][]float64 { return [][]float64{x.Cutpoints} })[0]
+	r.Effects = meanRows(first.Effects, rs, func(x *fit.Result) [][]float64 { return x.Effects })
+	r.Phi = meanRows(first.Phi, rs, func(x *fit.Result) [][]float64 { return x.Phi })
+	return &r, pl, nil
+}
+
 // meanRows averages a derived table (cutpoints, effects, phi) over the sets.
-func meanRows(shape [][]float64, perSet [][]*FitEntry, i int, get func(*fit.Result) [][]float64) [][]float64 {
+func meanRows(shape [][]float64, rs []*fit.Result, get func(*fit.Result) [][]float64) [][]float64 {
 	out := make([][]float64, len(shape))
 	for a, row := range shape {
 		out[a] = make([]float64, len(row))
 	}
-	for k := range perSet {
-		v := get(perSet[k][i].Result)
+	for _, r := range rs {
+		v := get(r)
 		for a := range out {
 			for b := range out[a] {
-				out[a][b] += v[a][b] / float64(len(perSet))
+				out[a][b] += v[a][b] / float64(len(rs))
 			}
 		}
 	}
@@ -333,22 +351,28 @@ func pooledLR(or *OutcomeResult, perSet [][]*FitEntry, r, f *FitEntry) fit.Test 
 	if !r.OK() || !f.OK() || r.Pooled == nil || f.Pooled == nil {
 		return missingTest(fit.TestLR, "a model has no usable fit in every imputed set")
 	}
-	k := f.Result.NParams - r.Result.NParams
-	mr, err1 := r.Spec.Model()
-	mf, err2 := f.Spec.Model()
-	if k <= 0 || err1 != nil || err2 != nil {
+	rs, fs := make([]*fit.Result, len(perSet)), make([]*fit.Result, len(perSet))
+	for s := range perSet {
+		rs[s], fs[s] = perSet[s][ri].Result, perSet[s][fi].Result
+	}
+	return pooledLROf(or.Imputed.Sets, r.Result, f.Result, rs, fs)
+}
+
+// pooledLROf is the D3 test of the pooled fit r within the pooled fit f,
+// with their fits rs and fs on each of the imputed sets.
+func pooledLROf(sets []*fit.Data, r, f *fit.Result, rs, fs []*fit.Result) fit.Test {
+	k := f.NParams - r.NParams
+	if k <= 0 {
 		return missingTest(fit.TestLR, "the models are not nested")
 	}
-	m := len(perSet)
-	own, at := make([]float64, m), make([]float64, m)
-	for s := range perSet {
-		own[s] = 2 * (perSet[s][fi].Result.LogLik - perSet[s][ri].Result.LogLik)
-		d := or.Imputed.Sets[s]
-		lf, err := fit.PartitionSums(d, mf, f.Result.Estimates, 0)
+	own, at := make([]float64, len(sets)), make([]float64, len(sets))
+	for s, d := range sets {
+		own[s] = 2 * (fs[s].LogLik - rs[s].LogLik)
+		lf, err := fit.PartitionSums(d, f.Model, f.Estimates, 0)
 		if err != nil || lf.Bad {
 			return missingTest(fit.TestLR, fmt.Sprintf("the full model cannot be evaluated at its pooled estimates in imputed set %d", s+1))
 		}
-		lr, err := fit.PartitionSums(d, mr, r.Result.Estimates, 0)
+		lr, err := fit.PartitionSums(d, r.Model, r.Estimates, 0)
 		if err != nil || lr.Bad {
 			return missingTest(fit.TestLR, fmt.Sprintf("the restricted model cannot be evaluated at its pooled estimates in imputed set %d", s+1))
 		}
@@ -358,7 +382,7 @@ func pooledLR(or *OutcomeResult, perSet [][]*FitEntry, r, f *FitEntry) fit.Test 
 	if err != nil {
 		return missingTest(fit.TestLR, err.Error())
 	}
-	return fTest(fit.TestLR, t, r.Result.LogLik, f.Result.LogLik)
+	return fTest(fit.TestLR, t, r.LogLik, f.LogLik)
 }
 
 // pooledEqualSlopes is the D1 test that the named columns' slopes are
@@ -367,13 +391,18 @@ func pooledEqualSlopes(np *FitEntry, cols []string) fit.Test {
 	if !np.OK() || np.Pooled == nil {
 		return missingTest(fit.TestWald, "the nonparallel model has no usable fit in every imputed set")
 	}
-	res := np.Result
+	return pooledEqualSlopesOf(np.Result, np.Pooled, cols)
+}
+
+// pooledEqualSlopesOf is the D1 test that the named columns' slopes are
+// equal at every boundary in the pooled fit res with Rubin's rules pl.
+func pooledEqualSlopesOf(res *fit.Result, pl *impute.Pooled, cols []string) fit.Test {
 	P := len(res.Estimates)
 	var C []float64
 	for _, c := range cols {
 		first := slices.Index(res.ParamNames, c+"[1]")
 		if first < 0 {
-			return missingTest(fit.TestWald, c+" is not a nonparallel predictor of "+np.ID)
+			return missingTest(fit.TestWald, c+" is not a nonparallel predictor of "+res.Name)
 		}
 		for m := 0; m+1 < res.J-1; m++ {
 			row := make([]float64, P)
@@ -381,7 +410,7 @@ func pooledEqualSlopes(np *FitEntry, cols []string) fit.Test {
 			C = append(C, row...)
 		}
 	}
-	t, err := impute.D1(np.Pooled, C, nil)
+	t, err := impute.D1(pl, C, nil)
 	if err != nil {
 		return missingTest(fit.TestWald, err.Error())
 	}
@@ -444,9 +473,8 @@ func runImputedOutcome(p *plan.Plan, an *Analysis, r Reading, oc plan.Outcome, o
 			return nil, fmt.Errorf("%s: outcome %q, imputed set %d: %v", p.Path, oc.Column, k+1, err)
 		}
 	}
-	fopt := an.Fit
 	backward := an.Models.Backward()
-	or.FreeSets, _ = freeSets(an, or.Terms, or.FitData, backward, fopt, opt.Workers)
+	or.FreeSets, or.Stepwise = freeSets(an, or.Terms, pooledStepwise(an, or), backward, opt.Workers)
 	jobs, notes := gridJobs(an, or.Terms, or.FreeSets, backward)
 	or.Notes = append(or.Notes, notes...)
 	perSet := poolJobs(an, sets, jobs, run, opt, oc.Column)

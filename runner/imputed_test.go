@@ -443,3 +443,67 @@ func TestImputedStackedWorkbook(t *testing.T) {
 		}
 	}
 }
+
+// TestImputedStepwise: stepwise selection on imputed data reads pooled
+// tests; with identical sets every step, test and the selected partial set
+// are the single-set selection's, and with sets that differ each step's
+// tests are pooled (D1 for Wald, D3 for likelihood ratio).
+func TestImputedStepwise(t *testing.T) {
+	for _, test := range []string{"wald", "lr"} {
+		write := func(dir, data string) *plan.Plan {
+			src := `version: 1
+title: imputed stepwise
+data: ` + data + `
+outcomes: [{column: y}]
+predictors: [x1, x2]
+models: {approaches: [cumulative], effects: [parallel, partial, nonparallel], partial: {select: {method: stepwise, alpha: 0.5, test: ` + test + `}}}
+rules:
+  - choose: {by: aic}
+`
+			os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644)
+			p, err := plan.Load(filepath.Join(dir, "p.yaml"))
+			if err != nil {
+				t.Fatal(err)
+			}
+			return p
+		}
+		dir := imputedFixture(t, 3, true)
+		oi := runPlan(t, write(dir, "{file: orig.csv, imputed: {file: stacked.csv, column: imp}}"), 0).Outcomes[0]
+		os1 := runPlan(t, write(dir, "{file: complete.csv}"), 0).Outcomes[0]
+		if len(oi.Stepwise) != 1 || len(os1.Stepwise) != 1 {
+			t.Fatalf("%s: stepwise records %d imputed, %d single", test, len(oi.Stepwise), len(os1.Stepwise))
+		}
+		si, ss := oi.Stepwise[0].Result, os1.Stepwise[0].Result
+		if !si.OK || !slices.Equal(si.FinalNonparallel, ss.FinalNonparallel) || len(si.Steps) != len(ss.Steps) {
+			t.Fatalf("%s: imputed %+v\nsingle %+v", test, si, ss)
+		}
+		want := map[string]string{"wald": "D1", "lr": "D3"}[test]
+		for i, st := range si.Steps {
+			w := ss.Steps[i]
+			if st.Imposed != w.Imposed || math.Abs(st.LogLik-w.LogLik) > 1e-8 || len(st.Tests) != len(w.Tests) {
+				t.Errorf("%s step %d: %+v vs %+v", test, i+1, st, w)
+				continue
+			}
+			for j, tt := range st.Tests {
+				if tt.Pooled != want || tt.Name != w.Tests[j].Name || math.Abs(tt.Chi2-w.Tests[j].Chi2) > 1e-6*math.Max(1, w.Tests[j].Chi2) || math.Abs(tt.P-w.Tests[j].P) > 1e-9 {
+					t.Errorf("%s step %d test %s: %+v vs %+v", test, i+1, tt.Name, tt, w.Tests[j])
+				}
+			}
+		}
+		if !slices.Equal(oi.FreeSets[0].Predictors, os1.FreeSets[0].Predictors) {
+			t.Errorf("%s: partial sets %v vs %v", test, oi.FreeSets[0].Predictors, os1.FreeSets[0].Predictors)
+		}
+
+		dir = imputedFixture(t, 4, false)
+		od := runPlan(t, write(dir, "{file: orig.csv, imputed: {file: stacked.csv, column: imp}}"), 0).Outcomes[0]
+		sd := od.Stepwise[0].Result
+		if !sd.OK || len(sd.Steps) == 0 {
+			t.Fatalf("%s, differing sets: %+v", test, sd)
+		}
+		for _, tt := range sd.Steps[0].Tests {
+			if !tt.OK || tt.Pooled != want || !(tt.DF2 > 0) {
+				t.Errorf("%s, differing sets, first step: %+v", test, tt)
+			}
+		}
+	}
+}

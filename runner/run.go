@@ -106,7 +106,7 @@ func runOutcome(p *plan.Plan, an *Analysis, r Reading, oc plan.Outcome, opt Opti
 	// (with the plan's standard errors).
 	swopt := fopt
 	swopt.Sandwich = sandwich
-	or.FreeSets, or.Stepwise = freeSets(an, or.Terms, or.FitData, backward, swopt, opt.Workers)
+	or.FreeSets, or.Stepwise = freeSets(an, or.Terms, fit.DataStepwiseFits(or.FitData, swopt), backward, opt.Workers)
 
 	// 2. The grid of candidate fits and the auxiliary fits the tests need.
 	jobs, notes := gridJobs(an, or.Terms, or.FreeSets, backward)
@@ -148,8 +148,9 @@ func runOutcome(p *plan.Plan, an *Analysis, r Reading, oc plan.Outcome, opt Opti
 }
 
 // freeSets returns the partial set of each approach: terms, listed in
-// the plan or selected stepwise (each term's columns tested jointly).
-func freeSets(an *Analysis, terms []fit.Term, d *fit.Data, backward bool, fopt fit.Options, workers int) ([]FreeSet, []StepwiseRecord) {
+// the plan or selected stepwise (each term's columns tested jointly) with
+// the fits and tests of sf (one data set's, or pooled over imputed sets).
+func freeSets(an *Analysis, terms []fit.Term, sf fit.StepwiseFits, backward bool, workers int) ([]FreeSet, []StepwiseRecord) {
 	var out []FreeSet
 	var sw []StepwiseRecord
 	sel := an.Models.Partial.Select
@@ -169,7 +170,7 @@ func freeSets(an *Analysis, terms []fit.Term, d *fit.Data, backward bool, fopt f
 			defer wg.Done()
 			sem <- struct{}{}
 			defer func() { <-sem }()
-			r := fit.StepwiseTerms(d, fit.Model{Comparison: a, Backward: backward && a == fit.Stage, Link: link}, terms, sel.Alpha, sel.Test, fopt)
+			r := fit.StepwiseWith(sf, fit.Model{Comparison: a, Backward: backward && a == fit.Stage, Link: link}, terms, sel.Alpha, sel.Test)
 			sw[i] = StepwiseRecord{Approach: a, Link: link, Result: r}
 		}()
 	}

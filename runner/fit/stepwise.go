@@ -57,17 +57,47 @@ func Stepwise(d *Data, base Model, candidates []string, alpha float64, test Test
 // StepwiseTerms is Stepwise over terms: each candidate is a group of
 // columns tested jointly (df: columns x (J-2)) and made parallel together.
 func StepwiseTerms(d *Data, base Model, candidates []Term, alpha float64, test TestKind, opt Options) *StepwiseResult {
+	return StepwiseWith(DataStepwiseFits(d, opt), base, candidates, alpha, test)
+}
+
+// DataStepwiseFits are the fits and tests of a selection on data d: Fit
+// with opt (and its sandwich step), WaldEqualSlopes and LRTest.
+func DataStepwiseFits(d *Data, opt Options) StepwiseFits {
+	return StepwiseFits{Predictors: d.Predictors, Wald: WaldEqualSlopes, LR: LRTest,
+		Fit: func(m Model) (*Result, error) {
+			r, err := Fit(d, m, opt)
+			if err == nil && opt.Sandwich != nil && r.OK() {
+				err = opt.Sandwich(r)
+			}
+			return r, err
+		}}
+}
+
+// StepwiseFits is what a selection does with its data: fit a model, test
+// in a fitted model that columns have equal slopes at every boundary
+// (Wald), and compare a restricted fit with a full one (likelihood
+// ratio). StepwiseTerms supplies those of one data set; a selection on
+// multiply imputed data supplies fits and tests pooled over the sets.
+type StepwiseFits struct {
+	Predictors []string
+	Fit        func(m Model) (*Result, error)
+	Wald       func(r *Result, columns []string) Test
+	LR         func(restricted, full *Result) Test
+}
+
+// StepwiseWith is StepwiseTerms with the fits and tests of sf.
+func StepwiseWith(sf StepwiseFits, base Model, candidates []Term, alpha float64, test TestKind) *StepwiseResult {
 	sr := &StepwiseResult{Alpha: alpha, Test: test}
 	if test != TestWald && test != TestLR {
 		sr.Reason = fmt.Sprintf("stepwise selection tests by wald or lr, not %s", test)
 		return sr
 	}
-	K := len(d.Predictors)
+	K := len(sf.Predictors)
 	eff := allEffects(K, Parallel)
 	cols := make([][]int, len(candidates))
 	for i, c := range candidates {
 		for _, name := range c.Columns {
-			k := indexOf(d.Predictors, name)
+			k := indexOf(sf.Predictors, name)
 			if k < 0 {
 				sr.Reason = fmt.Sprintf("candidate %q is not a predictor", name)
 				return sr
@@ -82,13 +112,7 @@ func StepwiseTerms(d *Data, base Model, candidates []Term, alpha float64, test T
 	}
 	model := base
 	model.Effects = eff
-	fitOne := func(m Model) (*Result, error) {
-		r, err := Fit(d, m, opt)
-		if err == nil && opt.Sandwich != nil && r.OK() {
-			err = opt.Sandwich(r)
-		}
-		return r, err
-	}
+	fitOne := sf.Fit
 	withParallel := func(m Model, i int) Model {
 		m.Effects = append([]Effect(nil), m.Effects...)
 		for _, k := range cols[i] {
@@ -119,13 +143,13 @@ func StepwiseTerms(d *Data, base Model, candidates []Term, alpha float64, test T
 			var t Test
 			var alt *Result
 			if sr.Test == TestWald {
-				t = WaldEqualSlopes(cur, c.Columns)
+				t = sf.Wald(cur, c.Columns)
 			} else {
 				alt, err = fitOne(withParallel(cur.Model, i))
 				if err != nil {
 					t = failedTest(TestLR.String(), "%v", err)
 				} else {
-					t = LRTest(alt, cur)
+					t = sf.LR(alt, cur)
 				}
 			}
 			t.Name = c.Name
@@ -165,9 +189,9 @@ func StepwiseTerms(d *Data, base Model, candidates []Term, alpha float64, test T
 	sr.FinalParallel = imposed
 	if len(imposed) > 0 {
 		if sr.Test == TestWald {
-			sr.FinalTest = WaldEqualSlopes(sr.Start, imposedCols)
+			sr.FinalTest = sf.Wald(sr.Start, imposedCols)
 		} else {
-			sr.FinalTest = LRTest(cur, sr.Start)
+			sr.FinalTest = sf.LR(cur, sr.Start)
 		}
 	} else {
 		sr.FinalTest = failedTest(sr.Test.String(), "no predictor was made parallel")
