@@ -10,6 +10,7 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"ordplan/render/numfmt"
+	"ordplan/runner"
 	"ordplan/runner/fit"
 )
 
@@ -133,4 +134,84 @@ func StereotypeTable(w io.Writer, r *fit.Result) error {
 		fmt.Fprintf(tw, "%s\t%s\t%s\t\t\t\n", p, numfmt.Num(s.Beta[k]), numfmt.Num(s.BetaSE[k]))
 	}
 	return tw.Flush()
+}
+
+// FitChecksText writes, after the table of FitTable, the odds ratios (logit
+// links), the model against its thresholds-only model with the pseudo-R2
+// measures, the Lipsitz test and, with categorical predictors, the
+// Pulkstenis-Robinson tests, one line each where it can.
+func FitChecksText(w io.Writer, r *fit.Result, c *runner.SingleChecks, level float64) error {
+	if level <= 0 || level >= 1 {
+		level = 0.95
+	}
+	if r.Model.Link == fit.Logit && len(r.Predictors) > 0 {
+		if err := oddsRatioText(w, r, level); err != nil {
+			return err
+		}
+	}
+	if c == nil {
+		return nil
+	}
+	o := c.Overall
+	fmt.Fprintf(w, "\nAgainst the thresholds-only model (log-likelihood %s): %s\n", numfmt.Fixed(o.NullLogLik, 6), testText("LR", o.LR))
+	mz := ""
+	if !math.IsNaN(o.McKelveyZavoina) {
+		mz = ", McKelvey-Zavoina " + numfmt.Fixed(o.McKelveyZavoina, 4)
+	}
+	fmt.Fprintf(w, "Pseudo-R2: McFadden %s, Cox-Snell %s, Nagelkerke %s%s\n", numfmt.Fixed(o.McFadden, 4), numfmt.Fixed(o.CoxSnell, 4), numfmt.Fixed(o.Nagelkerke, 4), mz)
+	if lz := c.Lipsitz; lz != nil {
+		groups := ""
+		if lz.Table != nil {
+			groups = fmt.Sprintf(" (%d groups of predicted score)", lz.Table.Groups)
+		}
+		fmt.Fprintf(w, "Lipsitz test%s: %s\n", groups, testText("", lz.Test))
+	}
+	if ps := c.PatternSplit; ps != nil && len(ps.Predictors) > 0 {
+		if ps.PatternSplit == nil {
+			fmt.Fprintf(w, "Pulkstenis-Robinson tests: not computed, %s\n", ps.NotComputed)
+			return nil
+		}
+		t := ps.PatternSplit
+		both := fmt.Sprintf("Pearson %s; deviance %s", testText("", t.Pearson), testText("", t.Deviance))
+		if !t.Pearson.OK && t.Pearson.Reason == t.Deviance.Reason {
+			both = "Pearson and deviance " + testText("", t.Pearson)
+		}
+		fmt.Fprintf(w, "Pulkstenis-Robinson tests (%s: %d patterns, %d groups): %s\n", strings.Join(ps.Predictors, ", "), t.Patterns, t.Groups, both)
+		if t.Caution != "" {
+			fmt.Fprintf(w, "  caution: %s\n", t.Caution)
+		}
+	}
+	return nil
+}
+
+// oddsRatioText writes exp(b) of each slope with its interval.
+func oddsRatioText(w io.Writer, r *fit.Result, level float64) error {
+	ors, err := r.OddsRatios(level)
+	if err != nil {
+		_, err = fmt.Fprintf(w, "\nOdds ratios not computed: %v\n", err)
+		return err
+	}
+	fmt.Fprintf(w, "\n%ss, exp(b) (above 1: towards higher categories):\n", capitalize(fit.OddsRatioKind(r.Model)))
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintf(tw, "predictor\tboundary\tratio\t%g%% interval\t\n", 100*level)
+	for _, o := range ors {
+		where := "all"
+		if o.Boundary > 0 {
+			where = fit.BoundaryLabel(r.Categories, o.Boundary-1)
+		}
+		fmt.Fprintf(tw, "%s\t%s\t%s\t[%s, %s]\t\n", o.Predictor, where, numfmt.Fixed(o.Ratio, 4), numfmt.Fixed(o.Low, 4), numfmt.Fixed(o.High, 4))
+	}
+	return tw.Flush()
+}
+
+// testText is a test in one phrase: "chi2(3) = 4.210, p = 0.2399", or why
+// it is not a test.
+func testText(label string, t fit.Test) string {
+	if label != "" {
+		label += " "
+	}
+	if !t.OK {
+		return "not tested: " + t.Reason
+	}
+	return fmt.Sprintf("%schi2(%d) = %s, %s", label, t.DF, numfmt.Stat(t.Chi2), numfmt.PText(t.P))
 }

@@ -6,6 +6,7 @@ import (
 	"sort"
 	"strings"
 
+	"ordplan/runner/design"
 	"ordplan/runner/fit"
 )
 
@@ -74,16 +75,21 @@ func runFitStats(a *Analysis, or *OutcomeResult) {
 	if or.Chosen == nil || !or.Chosen.OK() {
 		return
 	}
-	lz, err := fit.LipsitzTest(or.FitData, or.Chosen.Result, 0, fopt)
+	or.Lipsitz, or.PatternSplit = goodnessOfFit(&Loaded{Data: or.Data, Design: or.Design, FitData: or.FitData}, or.Chosen.Result, fopt, prob)
+}
+
+// goodnessOfFit runs the Lipsitz test of fit r on its data, with its
+// calibration table, and the Pulkstenis-Robinson tests (with sampling
+// weights the statistics are not tests and say so).
+func goodnessOfFit(ld *Loaded, r *fit.Result, fopt fit.Options, sampling bool) (*fit.Lipsitz, *PatternSplitRecord) {
+	lz, err := fit.LipsitzTest(ld.FitData, r, 0, fopt)
 	if err != nil {
-		or.Lipsitz = &fit.Lipsitz{Test: fit.Test{Name: "lipsitz", Reason: err.Error()}}
-		return
+		return &fit.Lipsitz{Test: fit.Test{Name: "lipsitz", Reason: err.Error()}}, nil
 	}
-	if prob && lz.Test.OK {
+	if sampling && lz.Test.OK {
 		lz.Test = fit.Test{Name: "lipsitz", Reason: likelihoodNote}
 	}
-	or.Lipsitz = lz
-	or.PatternSplit = patternSplit(or, prob)
+	return lz, patternSplit(ld, r, sampling)
 }
 
 // PatternSplitRecord is the Pulkstenis-Robinson tests of the chosen
@@ -98,16 +104,16 @@ type PatternSplitRecord struct {
 // weights.
 const pearsonNote = "the weights are sampling weights: weighted counts do not follow the multinomial model the chi-square reference assumes"
 
-// patternSplit runs the Pulkstenis-Robinson tests of the chosen model
-// when the outcome has categorical predictors: the rows grouped by the
-// combination of their levels.
-func patternSplit(or *OutcomeResult, sampling bool) *PatternSplitRecord {
+// patternSplit runs the Pulkstenis-Robinson tests of fit r when the
+// outcome has categorical predictors: the rows grouped by the combination
+// of their levels.
+func patternSplit(ld *Loaded, r *fit.Result, sampling bool) *PatternSplitRecord {
 	rec := &PatternSplitRecord{Predictors: []string{}}
-	if or.Design == nil || or.Data == nil {
+	if ld.Design == nil || ld.Data == nil {
 		return nil
 	}
 	var cats []int
-	for s, src := range or.Design.Sources {
+	for s, src := range ld.Design.Sources {
 		if src.Cat != nil {
 			cats = append(cats, s)
 			rec.Predictors = append(rec.Predictors, src.Name)
@@ -117,8 +123,8 @@ func patternSplit(or *OutcomeResult, sampling bool) *PatternSplitRecord {
 		rec.NotComputed = "no categorical predictors: the tests group the rows by the levels of the categorical predictors"
 		return rec
 	}
-	pattern, labels := covariatePatterns(or, cats)
-	ps, err := fit.PulkstenisRobinsonTest(or.FitData, or.Chosen.Result, pattern, labels, categoricalColumns(or))
+	pattern, labels := covariatePatterns(ld, cats)
+	ps, err := fit.PulkstenisRobinsonTest(ld.FitData, r, pattern, labels, categoricalColumns(ld.Design))
 	if err != nil {
 		rec.NotComputed = err.Error()
 		return rec
@@ -134,8 +140,8 @@ func patternSplit(or *OutcomeResult, sampling bool) *PatternSplitRecord {
 // covariatePatterns gives each row's combination of the levels of the
 // categorical sources cats (numbered in the order of the levels as
 // declared, first source slowest) and the label of each combination.
-func covariatePatterns(or *OutcomeResult, cats []int) ([]int, []string) {
-	ds := or.Data
+func covariatePatterns(ld *Loaded, cats []int) ([]int, []string) {
+	ds := ld.Data
 	keys := map[string][]int{}
 	rowKey := make([]string, ds.N)
 	for i := 0; i < ds.N; i++ {
@@ -159,7 +165,7 @@ func covariatePatterns(or *OutcomeResult, cats []int) ([]int, []string) {
 		index[k] = p
 		var parts []string
 		for c, s := range cats {
-			src := or.Design.Sources[s]
+			src := ld.Design.Sources[s]
 			parts = append(parts, src.Name+"="+src.Cat.Levels[keys[k][c]])
 		}
 		labels[p] = strings.Join(parts, ", ")
@@ -173,12 +179,12 @@ func covariatePatterns(or *OutcomeResult, cats []int) ([]int, []string) {
 
 // categoricalColumns lists the design columns made only of categorical
 // sources (their main effects and their products with each other).
-func categoricalColumns(or *OutcomeResult) []string {
+func categoricalColumns(dz *design.Design) []string {
 	var out []string
-	for k, t := range or.Design.Terms {
+	for k, t := range dz.Terms {
 		all := true
-		for _, name := range or.Design.TermSources(k) {
-			for _, src := range or.Design.Sources {
+		for _, name := range dz.TermSources(k) {
+			for _, src := range dz.Sources {
 				if src.Name == name && src.Cat == nil {
 					all = false
 				}

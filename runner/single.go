@@ -33,13 +33,54 @@ type SingleFit struct {
 // FitOne fits one model: it resolves the flags, reads the data, builds
 // the design, fits and applies the sandwich step of the covariance policy.
 func FitOne(s SingleFit) (*fit.Result, *data.Dataset, error) {
+	res, ld, _, err := fitOne(s)
+	if ld == nil {
+		return res, nil, err
+	}
+	return res, ld.Data, err
+}
+
+// SingleChecks is how well the model of `ordplan fit` fits: against its
+// thresholds-only model, and the goodness-of-fit tests.
+type SingleChecks struct {
+	Overall      OverallRecord       `json:"overall_fit"`
+	Lipsitz      *fit.Lipsitz        `json:"lipsitz,omitempty"`
+	PatternSplit *PatternSplitRecord `json:"pulkstenis_robinson,omitempty"`
+}
+
+// FitOneChecked is FitOne followed, when the fit has a finite maximum, by
+// its checks: the thresholds-only model with the likelihood-ratio test and
+// pseudo-R2, the Lipsitz test and, with categorical predictors, the
+// Pulkstenis-Robinson tests (as ordplan run computes them for the chosen
+// model).
+func FitOneChecked(s SingleFit) (*fit.Result, *data.Dataset, *SingleChecks, error) {
+	res, ld, a, err := fitOne(s)
+	if ld == nil {
+		return res, nil, nil, err
+	}
+	if err != nil || !res.OK() {
+		return res, ld.Data, nil, err
+	}
+	null, _ := fit.FitNull(ld.FitData, res.Model, a.Fit)
+	o := fit.OverallFit(ld.FitData, res, null)
+	if a.Errors.Sampling && o.LR.OK {
+		o.LR = fit.Test{Name: o.LR.Name, Reason: likelihoodNote}
+	}
+	c := &SingleChecks{Overall: OverallRecord{Model: res.Name, Null: fit.ModelID(res.Model.ComparisonName(), "thresholds-only", res.Model.Link), Overall: o}}
+	c.Lipsitz, c.PatternSplit = goodnessOfFit(ld, res, a.Fit, a.Errors.Sampling)
+	return res, ld.Data, c, nil
+}
+
+// fitOne fits the model of s, returning what it loaded (nil when the
+// data could not be read) and the resolved analysis.
+func fitOne(s SingleFit) (*fit.Result, *Loaded, *Analysis, error) {
 	a, err := ResolveFit(s)
 	if err != nil {
-		return nil, nil, err
+		return nil, nil, nil, err
 	}
 	ld, err := a.Load(a.Outcomes[0])
 	if err != nil {
-		return nil, nil, err
+		return nil, nil, a, err
 	}
 	ds := ld.Data
 	ds.Notes = append(ds.Notes, ld.Design.Notes...)
@@ -50,18 +91,18 @@ func FitOne(s SingleFit) (*fit.Result, *data.Dataset, error) {
 	}
 	model, err := s.spec(ld.Design.Columns, columnsOf(terms, s.Nonparallel), groups).Model()
 	if err != nil {
-		return nil, ds, err
+		return nil, ld, a, err
 	}
 	res, err := fit.Fit(ld.FitData, model, a.Fit)
 	if err != nil {
-		return nil, ds, fmt.Errorf("%s: %w", s.DataFile, err)
+		return nil, ld, a, fmt.Errorf("%s: %w", s.DataFile, err)
 	}
 	if sw := a.Errors.Sandwich(ds, ld.FitData); sw != nil && res.OK() {
 		if err := sw(res); err != nil {
-			return nil, ds, err
+			return nil, ld, a, err
 		}
 	}
-	return res, ds, nil
+	return res, ld, a, nil
 }
 
 // Model is the model the flags describe, on the term names (which are the

@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"math"
 	"ordplan/internal/refdata"
 	"os"
@@ -115,5 +116,86 @@ func TestFitTableAndFailures(t *testing.T) {
 				t.Fatalf("error must be one line: %q", errs)
 			}
 		})
+	}
+}
+
+// TestFitPrintsChecks: ordplan fit prints, after the estimates, the odds
+// ratios of a logit fit (exp of the estimate and of its interval bounds),
+// the likelihood-ratio test against the thresholds-only model with the
+// pseudo-R2 measures, the Lipsitz test and, with a categorical predictor,
+// the Pulkstenis-Robinson tests; the same numbers are in its --json output.
+//
+// gsswarm (Long 1997; testdata/reference): the ordered logit of warm on
+// six predictors has LR chi2(6) = 301.72 and McFadden's R2 0.050
+// (published values, from memory: Long & Freese 2014, as in
+// runner/fit/overall_test.go).
+func TestFitPrintsChecks(t *testing.T) {
+	gss := filepath.Join(refDir, "gsswarm.csv")
+	args := []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89,male,white,age,ed,prst", "--confidence-level", "0.9"}
+	out, errs, code := runCLI(args...)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, want := range []string{
+		"Cumulative odds ratios, exp(b) (above 1: towards higher categories):",
+		"Against the thresholds-only model (log-likelihood ",
+		"LR chi2(6) = 301.7", // 301.716: the published 301.72 to its digits
+		"Pseudo-R2: McFadden 0.05",
+		", McKelvey-Zavoina 0.",
+		"Lipsitz test (10 groups of predicted score): chi2(9) = ",
+	} {
+		if !strings.Contains(out, want) {
+			t.Errorf("output lacks %q:\n%s", want, out)
+		}
+	}
+	if strings.Contains(out, "Pulkstenis-Robinson") {
+		t.Errorf("Pulkstenis-Robinson line without categorical predictors:\n%s", out)
+	}
+	js, errs, code := runCLI(append(args, "--json")...)
+	if code != 0 {
+		t.Fatalf("--json: exit %d: %s", code, errs)
+	}
+	var rec struct {
+		Estimates map[string]float64 `json:"estimates"`
+		StdErrors map[string]float64 `json:"std_errors"`
+		Checks    struct {
+			Overall struct {
+				LR struct {
+					Chi2 float64 `json:"chi2"`
+				} `json:"lr_vs_null"`
+			} `json:"overall_fit"`
+			Lipsitz struct {
+				Test struct {
+					Chi2 float64 `json:"chi2"`
+				} `json:"test"`
+			} `json:"lipsitz"`
+		} `json:"checks"`
+	}
+	if err := json.Unmarshal([]byte(js), &rec); err != nil {
+		t.Fatalf("%v\n%s", err, js)
+	}
+	if rec.Checks.Overall.LR.Chi2 == 0 || rec.Checks.Lipsitz.Test.Chi2 == 0 {
+		t.Errorf("--json lacks the checks: %s", js)
+	}
+	// exp(b) and exp(b -+ z se), z for 90%, as printed with four decimals.
+	b, se := rec.Estimates["male"], rec.StdErrors["male"]
+	if b == 0 || se == 0 {
+		t.Fatalf("no estimate of male in %s", js)
+	}
+	const z = 1.6448536269514722
+	row := fmt.Sprintf("male all %.4f [%.4f, %.4f]", math.Exp(b), math.Exp(b-z*se), math.Exp(b+z*se))
+	if !strings.Contains(strings.Join(strings.Fields(out), " "), row) {
+		t.Errorf("odds ratio row %q not in:\n%s", row, out)
+	}
+
+	// A categorical predictor: the Pulkstenis-Robinson line.
+	qs := filepath.Join("..", "..", "plans", "data", "quietstreets.csv")
+	out, errs, code = runCLI("fit", "--data", qs, "--outcome", "safety", "--categories", "very_unsafe,unsafe,neutral,safe,very_safe",
+		"--predictors", "pilot,age,street_type|levels=residential/through_road/cul_de_sac")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if !strings.Contains(out, "Pulkstenis-Robinson tests (street_type: 3 patterns, 6 groups): Pearson chi2(17) = ") || !strings.Contains(out, "; deviance chi2(17) = ") {
+		t.Errorf("no Pulkstenis-Robinson line:\n%s", out)
 	}
 }

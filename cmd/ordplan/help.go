@@ -36,7 +36,7 @@ var commands = []command{
 		about:    "Reads the plan, lists every problem with its line and column, reads the data file's header and checks the predictors can be fitted; then lists the rules as they will be applied.",
 		examples: map[string]string{"no-data": "--no-data", "allow-unregistered-changes": "--allow-unregistered-changes"}},
 	{name: "fit", args: "--data FILE --outcome COLUMN --predictors a,b [flags]", summary: "fit one model from the command line and print its table",
-		about: "Fits one model of the typology (an approach, a link and an effect structure for each predictor) and prints the estimates, or one JSON object with --json.",
+		about: "Fits one model of the typology (an approach, a link and an effect structure for each predictor) and prints the estimates; then, for a fit with a finite maximum, the odds ratios with their intervals (logit link), the likelihood-ratio test against the thresholds-only model with pseudo-R2 measures, the Lipsitz test and, when a predictor is categorical, the Pulkstenis-Robinson tests. With --json it prints one JSON object, the same checks under \"checks\".",
 		examples: map[string]string{
 			"data": "--data plans/data/quietstreets.csv", "outcome": "--outcome safety",
 			"categories": "--categories very_unsafe,unsafe,neutral,safe,very_safe", "predictors": "--predictors pilot,female,age",

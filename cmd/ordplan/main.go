@@ -157,7 +157,7 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 	if *f.partitions != "" || *f.queue.url != "" {
 		return fitPartitioned(s, f.queue, runner.SplitList(*f.partitions), *f.asJSON, *f.level, stdout, stderr)
 	}
-	res, ds, err := runner.FitOne(s)
+	res, ds, checks, err := runner.FitOneChecked(s)
 	if err != nil {
 		return fail(stderr, err)
 	}
@@ -165,7 +165,7 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
-	if err := f.print(stdout, res, ds, base); err != nil {
+	if err := f.print(stdout, res, ds, base, checks); err != nil {
 		return fail(stderr, err)
 	}
 	if !res.OK() {
@@ -307,14 +307,16 @@ func (f *fitFlags) baselineOf(res *fit.Result) (*fit.Baseline, error) {
 	return res.Baseline(ref)
 }
 
-// print writes the fit as one JSON object or as the tables.
-func (f *fitFlags) print(stdout io.Writer, res *fit.Result, ds *data.Dataset, base *fit.Baseline) error {
+// print writes the fit as one JSON object or as the tables, with the
+// checks of the fit (nil when it has no finite maximum).
+func (f *fitFlags) print(stdout io.Writer, res *fit.Result, ds *data.Dataset, base *fit.Baseline, checks *runner.SingleChecks) error {
 	if *f.asJSON {
 		rec := runner.Record(res)
 		out := struct {
 			runner.FitRecord
-			Baseline *fit.Baseline `json:"baseline,omitempty"`
-		}{rec, base}
+			Baseline *fit.Baseline        `json:"baseline,omitempty"`
+			Checks   *runner.SingleChecks `json:"checks,omitempty"`
+		}{rec, base, checks}
 		b, err := runner.MarshalStable(out)
 		if err != nil {
 			return err
@@ -334,7 +336,12 @@ func (f *fitFlags) print(stdout io.Writer, res *fit.Result, ds *data.Dataset, ba
 		render.BaselineTable(stdout, res, base)
 	}
 	if *f.stereotype && res.OK() {
-		return render.StereotypeTable(stdout, res)
+		if err := render.StereotypeTable(stdout, res); err != nil {
+			return err
+		}
 	}
-	return nil
+	if !res.OK() {
+		return nil
+	}
+	return render.FitChecksText(stdout, res, checks, *f.level)
 }
