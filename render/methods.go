@@ -75,9 +75,18 @@ func writeMethods(d *doc, r *runner.Result) {
 		ds := or.Data
 		s = append(s, fmt.Sprintf("The outcome %s (%d ordered categories, from %s to %s) was analysed with ordinal regression models fitted by maximum likelihood (ordplan %s).",
 			or.Outcome.Label, len(ds.Categories), ds.Categories[0], ds.Categories[len(ds.Categories)-1], r.Version))
-		if ds.RowsDropped > 0 {
+		switch {
+		case ds.RowsOutside > 0:
+			var conds []string
+			for _, c := range p.Subset {
+				conds = append(conds, c.String())
+			}
+			in := ds.RowsRead - ds.RowsOutside
+			s = append(s, fmt.Sprintf("Of %d rows, %d met the plan's subset conditions (%s); of these, %d were used and %d were dropped for missing values or zero weight before any model was fitted.",
+				ds.RowsRead, in, strings.Join(conds, "; "), ds.N, in-ds.N))
+		case ds.RowsDropped > 0:
 			s = append(s, fmt.Sprintf("Of %d rows, %d were used; %d were dropped for missing values or zero weight before any model was fitted.", ds.RowsRead, ds.N, ds.RowsDropped))
-		} else {
+		default:
 			s = append(s, fmt.Sprintf("All %d rows were used.", ds.N))
 		}
 		var comps []string

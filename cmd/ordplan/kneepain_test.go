@@ -51,3 +51,35 @@ func TestRegisteredExampleBeforeData(t *testing.T) {
 		}
 	}
 }
+
+// A rehearsal of a plan with a subset on a column that is not a
+// predictor: the column is simulated, the reader applies the condition,
+// and the report says how many simulated rows it kept (in the opening
+// lines and in the methods paragraph). The stage generating model is
+// named, with its stated correlation accepted.
+func TestRehearseWithSubset(t *testing.T) {
+	src, err := os.ReadFile(filepath.Join("..", "..", "plans", "kneepain.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := strings.Replace(string(src), "predictors: [arm, age, baseline_pain, site]", "predictors: [arm, age, site]\nsubset:\n  - {column: baseline_pain, at_least: 3}", 1)
+	s = strings.Replace(s, "        baseline_pain: 0.08\n", "", 1)
+	s = strings.Replace(s, "  n: 300 ", "  comparison: stage\n  correlations:\n    - {between: [age, baseline_pain], r: 0.3}\n  n: 300 ", 1)
+	s = strings.Replace(s, "focus_predictor: baseline_pain", "focus_predictor: age", 1)
+	dir := t.TempDir()
+	path := filepath.Join(dir, "sub.yaml")
+	if err := os.WriteFile(path, []byte(s), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out, errs, code := runCLI("rehearse", path, "--out", filepath.Join(dir, "r"))
+	if code != 0 {
+		t.Fatalf("rehearse: %d %s %s", code, out, errs)
+	}
+	md, _ := os.ReadFile(filepath.Join(dir, "r", "report.md"))
+	for _, want := range []string{"with a stage (forward) logit model generating each outcome", "The plan's subset (baseline_pain >= 3) kept ",
+		" of the 300 simulated rows", "met the plan's subset conditions (baseline_pain >= 3); of these, "} {
+		if !strings.Contains(string(md), want) {
+			t.Errorf("report.md lacks %q", want)
+		}
+	}
+}

@@ -59,20 +59,27 @@ assumptions:
         ws: {at: [-1.5, 0, 1.5], values: [0, 0.8, 0.4]}
 `
 
-// fitLarge simulates n rows of the plan and fits its first outcome with
-// the given comparison, every term parallel except those in nonparallel.
-func fitLarge(t *testing.T, p *plan.Plan, n int, cmp fit.Comparison, nonparallel []string) (*fit.Result, map[string]float64, map[string]float64, []float64) {
+// simulated is replicate rep of n rows of the plan, as CSV.
+func simulated(t *testing.T, p *plan.Plan, n int, rep uint64) []byte {
 	t.Helper()
 	sim, err := New(p)
 	if err != nil {
 		t.Fatal(err)
 	}
 	var buf bytes.Buffer
-	if err := sim.Write(&buf, n, 1); err != nil {
+	if err := sim.Write(&buf, n, rep); err != nil {
 		t.Fatal(err)
 	}
+	return buf.Bytes()
+}
+
+// fitLarge simulates n rows of the plan and fits its first outcome with
+// the given comparison, every term parallel except those in nonparallel.
+func fitLarge(t *testing.T, p *plan.Plan, n int, cmp fit.Comparison, nonparallel []string) (*fit.Result, map[string]float64, map[string]float64, []float64) {
+	t.Helper()
+	csv := simulated(t, p, n, 1)
 	path := filepath.Join(t.TempDir(), "sim.csv")
-	if err := os.WriteFile(path, buf.Bytes(), 0o644); err != nil {
+	if err := os.WriteFile(path, csv, 0o644); err != nil {
 		t.Fatal(err)
 	}
 	oc := p.Outcomes[0]
@@ -84,7 +91,7 @@ func fitLarge(t *testing.T, p *plan.Plan, n int, cmp fit.Comparison, nonparallel
 	}
 	rec := runner.Record(res)
 	// Shares of each category.
-	lines := strings.Split(strings.TrimSpace(buf.String()), "\n")
+	lines := strings.Split(strings.TrimSpace(string(csv)), "\n")
 	counts := make([]float64, len(oc.Categories))
 	for _, l := range lines[1:] {
 		counts[slices.Index(oc.Categories, strings.SplitN(l, ",", 2)[0])]++
@@ -245,17 +252,8 @@ assumptions:
 // standard deviations stay the stated ones; the uniform column keeps its
 // range.
 func TestCorrelationsRecovered(t *testing.T) {
-	p := parsePlan(t, corrPlan)
-	sim, err := New(p)
-	if err != nil {
-		t.Fatal(err)
-	}
 	const n = 50_000
-	var buf bytes.Buffer
-	if err := sim.Write(&buf, n, 0); err != nil {
-		t.Fatal(err)
-	}
-	lines := strings.Split(strings.TrimSpace(buf.String()), "\n")
+	lines := strings.Split(strings.TrimSpace(string(simulated(t, parsePlan(t, corrPlan), n, 0))), "\n")
 	if lines[0] != "y,u,v,w" {
 		t.Fatalf("header %q", lines[0])
 	}
@@ -336,18 +334,10 @@ assumptions:
 // them, within 4 binomial standard errors.
 func TestSubsetAppliedToSimulatedRows(t *testing.T) {
 	p := parsePlan(t, subsetPlan)
-	sim, err := New(p)
-	if err != nil {
-		t.Fatal(err)
-	}
 	const n = 4000
-	var buf bytes.Buffer
-	if err := sim.Write(&buf, n, 0); err != nil {
-		t.Fatal(err)
-	}
 	q := *p
 	q.Data.Path = filepath.Join(t.TempDir(), "sim.csv")
-	if err := os.WriteFile(q.Data.Path, buf.Bytes(), 0o644); err != nil {
+	if err := os.WriteFile(q.Data.Path, simulated(t, p, n, 0), 0o644); err != nil {
 		t.Fatal(err)
 	}
 	res, err := runner.Run(&q, runner.Options{Workers: 1})
