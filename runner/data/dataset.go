@@ -59,6 +59,9 @@ type Dataset struct {
 	// Notes are remarks of the steps after reading that the user must see
 	// (a declared level dropped because no row has it).
 	Notes []string
+	// Parts are the files of a data set read as parts (LoadFiles), with
+	// the numbering of their lines in Lines; nil for one file.
+	Parts []PartSpan
 }
 
 // MissingTable is the missing-value pattern of the used columns (outcome,

@@ -1,0 +1,271 @@
+package data
+
+import (
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"slices"
+	"sort"
+	"strings"
+)
+
+// A data set may be held as parts: several files (of any format, each
+// with its own header) with the same columns, read as one data set, in
+// order, as if their rows were one file. The reader sees one stream of
+// records (partRecords) whose lines are numbered through the parts: part
+// k's line l is Offset_k + l, so that every row of the data set has its
+// own line number (Dataset.Lines); PartSpan maps a number back to the
+// part's file and its own line, and every message names those.
+
+// PartSpan is one part of a data set read from several files: the file,
+// and the numbers its lines have in the data set (Offset + the line in the
+// file, up to Offset + Last).
+type PartSpan struct {
+	File   string
+	Offset int
+	Last   int
+}
+
+// PartsName names a data set held as parts in messages: the files when
+// there are two or three, else the first and the last with their number.
+func PartsName(files []string) string {
+	switch {
+	case len(files) == 1:
+		return files[0]
+	case len(files) <= 3:
+		return "parts " + strings.Join(files, ", ")
+	}
+	return fmt.Sprintf("%d parts %s, ..., %s", len(files), files[0], files[len(files)-1])
+}
+
+// LoadFiles reads a data set held in one file (Load) or as parts, files
+// with the same columns read as one data set in order. A part's header
+// may list the columns in another order; a part with other columns, or
+// without data rows, is refused naming it. Messages about a row name its
+// part's file and line.
+func LoadFiles(paths []string, opt Options) (*Dataset, error) {
+	switch len(paths) {
+	case 0:
+		return nil, &Error{File: "<data>", Msg: "no data file given"}
+	case 1:
+		return Load(paths[0], opt)
+	}
+	pr := &partRecords{paths: paths, dialect: opt.Dialect}
+	r := &reader{file: PartsName(paths), opt: opt, missing: opt.missingSet(), cr: pr}
+	cols, err := r.opt.plan()
+	if err != nil {
+		return nil, &Error{File: r.file, Msg: err.Error()}
+	}
+	if err := r.header(cols); err != nil {
+		return nil, pr.local(err)
+	}
+	d, err := r.rows()
+	if err != nil {
+		return nil, pr.local(err)
+	}
+	d.Parts = pr.spans
+	return d, nil
+}
+
+// Files lists the files a data set was read from: its parts, or its file.
+func (d *Dataset) Files() []string {
+	if len(d.Parts) == 0 {
+		return []string{d.File}
+	}
+	out := make([]string, len(d.Parts))
+	for i, p := range d.Parts {
+		out[i] = p.File
+	}
+	return out
+}
+
+// Place gives the file and the file's own line of a line number of the
+// data set (Dataset.Lines): for one file, the file and the number itself.
+func (d *Dataset) Place(line int) (string, int) {
+	return placeOf(d.Parts, d.File, line)
+}
+
+// Where writes a line number of the data set as "file:line".
+func (d *Dataset) Where(line int) string {
+	f, l := d.Place(line)
+	return fmt.Sprintf("%s:%d", f, l)
+}
+
+func placeOf(spans []PartSpan, file string, line int) (string, int) {
+	if len(spans) == 0 || line <= 0 {
+		return file, line
+	}
+	k := sort.Search(len(spans), func(i int) bool { return spans[i].Offset+spans[i].Last >= line })
+	if k == len(spans) {
+		k = len(spans) - 1
+	}
+	return spans[k].File, line - spans[k].Offset
+}
+
+// partRecords are the records of several parts as one stream: the first
+// part's header, then every part's rows in the first header's column
+// order, each part opened (and its header checked) when the previous one
+// ends. Lines are numbered through the parts (see PartSpan).
+type partRecords struct {
+	paths   []string
+	dialect Dialect
+	spans   []PartSpan
+	header  []string // the first part's names
+	cur     *reader  // the part being read
+	perm    []int    // field of the part's record for each column of the header
+	next    int      // the next part to open
+	line    int      // the line (in the part) of the last record read
+}
+
+// partError is a problem with a part as a whole: its file, what is wrong.
+type partError struct{ err *Error }
+
+func (e *partError) Error() string { return e.err.Error() }
+
+// open starts part k: its reader, its header, the order of its columns.
+func (p *partRecords) open(k int) error {
+	path := p.paths[k]
+	for _, s := range p.spans {
+		if s.File == path {
+			return &partError{&Error{File: path, Msg: "is listed twice among the parts; every part is read once"}}
+		}
+	}
+	raw, err := ReadFile(path)
+	if err != nil {
+		var de *Error
+		if errors.As(err, &de) {
+			return &partError{de}
+		}
+		return &partError{&Error{File: path, Msg: err.Error(), Err: err}}
+	}
+	sub := &reader{file: path, opt: Options{Dialect: p.dialect}}
+	if err := sub.start(bytes.NewReader(raw)); err != nil {
+		var de *Error
+		if errors.As(err, &de) {
+			return &partError{de}
+		}
+		return err
+	}
+	names, where, err := sub.names()
+	if err != nil {
+		var de *Error
+		if errors.As(err, &de) {
+			return &partError{de}
+		}
+		return err
+	}
+	offset := 0
+	if n := len(p.spans); n > 0 {
+		offset = p.spans[n-1].Offset + p.spans[n-1].Last
+	}
+	p.spans = append(p.spans, PartSpan{File: path, Offset: offset, Last: 1})
+	if k == 0 {
+		p.header = names
+	} else if msg := sameColumns(p.header, names); msg != "" {
+		return &partError{&Error{File: path, Line: 1, Msg: fmt.Sprintf("has other columns than the first part %s (%s); every part must have the same columns", p.paths[0], msg)}}
+	}
+	p.perm = make([]int, len(p.header))
+	for i, n := range p.header {
+		p.perm[i] = where[n]
+	}
+	p.cur, p.next = sub, k+1
+	return nil
+}
+
+// sameColumns says how names differ from the header as a set ("" when
+// they do not).
+func sameColumns(header, names []string) string {
+	var lack, extra []string
+	for _, h := range header {
+		if !slices.Contains(names, h) {
+			lack = append(lack, h)
+		}
+	}
+	for _, n := range names {
+		if !slices.Contains(header, n) {
+			extra = append(extra, n)
+		}
+	}
+	var parts []string
+	if len(lack) > 0 {
+		parts = append(parts, "it lacks "+quoteList(lack))
+	}
+	if len(extra) > 0 {
+		parts = append(parts, "it has "+quoteList(extra)+" besides")
+	}
+	return strings.Join(parts, "; ")
+}
+
+// Read gives the first part's header, then the rows of every part.
+func (p *partRecords) Read() ([]string, error) {
+	if p.header == nil {
+		if err := p.open(0); err != nil {
+			return nil, err
+		}
+		return slices.Clone(p.header), nil
+	}
+	for {
+		rec, err := p.cur.cr.Read()
+		if err == nil {
+			p.line, _ = p.cur.cr.FieldPos(0)
+			span := &p.spans[len(p.spans)-1]
+			span.Last = max(span.Last, p.line)
+			out := make([]string, len(p.perm))
+			for i, j := range p.perm {
+				out[i] = rec[j]
+			}
+			return out, nil
+		}
+		if err != io.EOF {
+			var pe *csv.ParseError
+			if errors.As(err, &pe) {
+				// Lines through the parts, like FieldPos.
+				q := *pe
+				off := p.spans[len(p.spans)-1].Offset
+				q.StartLine += off
+				q.Line += off
+				return rec, &q
+			}
+			return rec, &partError{p.cur.csvErr(err, rec)}
+		}
+		if p.spans[len(p.spans)-1].Last == 1 {
+			return nil, &partError{&Error{File: p.paths[p.next-1], Msg: "no data rows after the header; every part needs rows (leave an empty part out of data.parts)"}}
+		}
+		if p.next == len(p.paths) {
+			return nil, io.EOF
+		}
+		if err := p.open(p.next); err != nil {
+			return nil, err
+		}
+	}
+}
+
+// FieldPos gives the line of the last record read, numbered through the
+// parts.
+func (p *partRecords) FieldPos(int) (int, int) {
+	if len(p.spans) == 0 {
+		return 0, 0
+	}
+	return p.spans[len(p.spans)-1].Offset + p.line, 0
+}
+
+// local rewrites an error of the reader over the parts: a problem with a
+// part as a whole as it is; a line numbered through the parts as the
+// part's file and its own line; an error on no line names the parts.
+func (p *partRecords) local(err error) error {
+	var pe *partError
+	if errors.As(err, &pe) {
+		return pe.err
+	}
+	var de *Error
+	if !errors.As(err, &de) {
+		return err
+	}
+	e := *de
+	if e.Line > 0 {
+		e.File, e.Line = placeOf(p.spans, e.File, e.Line)
+	}
+	return &e
+}

@@ -1,0 +1,91 @@
+package data
+
+import (
+	"os"
+	"path/filepath"
+	"reflect"
+	"strings"
+	"testing"
+)
+
+// A data set read as parts is the data set of the concatenated file: the
+// same rows, values, counts, drops and missing-value tables; its lines are
+// numbered through the parts and map back to each part's file and line.
+func TestPartsReadAsOne(t *testing.T) {
+	dir := t.TempDir()
+	write := func(name, text string) string {
+		p := filepath.Join(dir, name)
+		if err := os.WriteFile(p, []byte(text), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	all := write("all.csv", "y,a,b\n1,0.5,x\n2,NA,y\n3,1.5,x\n1,2,y\n2,,x\n3,0.25,y\n")
+	// b's header lists the columns in another order.
+	a := write("a.csv", "y,a,b\n1,0.5,x\n2,NA,y\n")
+	b := write("b.csv", "b,y,a\nx,3,1.5\ny,1,2\n")
+	c := write("c.csv", "y,a,b\n2,,x\n3,0.25,y\n")
+	opt := Options{Outcome: "y", Predictors: []string{"a", "b"}, PredictorLevels: map[string][]string{"b": {"x", "y"}}}
+	want, err := Load(all, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got, err := LoadFiles([]string{a, b, c}, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, f := range []struct {
+		name string
+		g, w any
+	}{
+		{"Y", got.Y, want.Y}, {"X", got.X, want.X}, {"Categories", got.Categories, want.Categories},
+		{"Counts", got.Counts, want.Counts}, {"RowsRead", got.RowsRead, want.RowsRead},
+		{"Dropped", got.Dropped, want.Dropped}, {"Missing", got.Missing, want.Missing},
+	} {
+		if !reflect.DeepEqual(f.g, f.w) {
+			t.Errorf("%s: %v, want %v", f.name, f.g, f.w)
+		}
+	}
+	var where []string
+	for _, l := range got.Lines {
+		where = append(where, got.Where(l))
+	}
+	if w := []string{a + ":2", b + ":2", b + ":3", c + ":3"}; !reflect.DeepEqual(where, w) {
+		t.Errorf("rows at %v, want %v", where, w)
+	}
+	if !reflect.DeepEqual(got.Files(), []string{a, b, c}) {
+		t.Errorf("files %v", got.Files())
+	}
+}
+
+// Bad parts are refused naming the part: a missing file, other columns,
+// a part listed twice, a part without rows, and a bad cell in a later part
+// at that part's own line.
+func TestPartsBadInput(t *testing.T) {
+	dir := t.TempDir()
+	write := func(name, text string) string {
+		p := filepath.Join(dir, name)
+		os.WriteFile(p, []byte(text), 0o644)
+		return p
+	}
+	a := write("a.csv", "y,a\n1,0.5\n2,1\n")
+	other := write("other.csv", "y,z\n1,0.5\n")
+	empty := write("empty.csv", "y,a\n")
+	bad := write("bad.csv", "y,a\n1,0.5\n2,high\n")
+	opt := Options{Outcome: "y", Predictors: []string{"a"}}
+	for _, c := range []struct {
+		parts []string
+		want  string
+	}{
+		{[]string{a, filepath.Join(dir, "gone.csv")}, "gone.csv: cannot open file: no such file or directory"},
+		{[]string{a, other}, `other.csv:1: has other columns than the first part ` + a + ` (it lacks "a"; it has "z" besides); every part must have the same columns`},
+		{[]string{a, a}, "a.csv: is listed twice among the parts; every part is read once"},
+		{[]string{a, empty}, "empty.csv: no data rows after the header; every part needs rows"},
+		{[]string{a, bad}, `bad.csv:3: column "a": value "high" is not a number`},
+	} {
+		_, err := LoadFiles(c.parts, opt)
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%v: got %v, want %q", c.parts, err, c.want)
+		}
+	}
+}
