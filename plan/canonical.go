@@ -48,6 +48,7 @@ type canonPlan struct {
 
 type canonData struct {
 	File          string           `json:"file"`
+	Parts         []string         `json:"parts,omitempty"`
 	Missing       string           `json:"missing"`
 	MissingValues []string         `json:"missing_values"`
 	Delimiter     string           `json:"delimiter,omitempty"`
@@ -146,6 +147,7 @@ func (p *Plan) canonical() canonPlan {
 		Covariance: p.Covariance,
 		Data: canonData{
 			File:          p.Data.File,
+			Parts:         p.Data.Parts,
 			Missing:       p.Data.Missing,
 			MissingValues: p.Data.MissingValues,
 			Delimiter:     nonDefault(p.Data.Delimiter, "comma"),

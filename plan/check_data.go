@@ -18,8 +18,100 @@ import (
 // file, including a bad header, are left to the data reader, which names
 // the line of the data file.
 func (d *decoder) checkDataColumns(p *Plan) {
+	var header []string
+	if p.Data.Parts != nil {
+		var ok bool
+		if header, ok = d.checkParts(p); !ok {
+			return
+		}
+	} else {
+		var ok bool
+		if header, ok = d.dataHeader(p); !ok {
+			return
+		}
+	}
+	d.checkHeader(p, header)
+}
+
+// checkParts checks the parts of data.parts: every pattern matches a
+// file, no file is listed twice, every part opens and has the columns of
+// the first; it returns the first part's header.
+func (d *decoder) checkParts(p *Plan) ([]string, bool) {
+	if !d.clean("data.parts") || len(p.Data.PartPaths) == 0 {
+		return nil, false
+	}
+	seen := map[string]string{}
+	ok := true
+	for i, path := range p.Data.PartPaths {
+		file := p.Data.PartFiles[i]
+		if prev, dup := seen[path]; dup {
+			how := "as " + strconv.Quote(prev) + " and as " + strconv.Quote(file)
+			if prev == file {
+				how = "a pattern and a name, or two patterns, both give it"
+			}
+			d.errAt("data.parts", "the part %s comes twice from the list (%s); every part is read once", strconv.Quote(file), how)
+			ok = false
+		}
+		seen[path] = file
+	}
+	var first []string
+	for i, path := range p.Data.PartPaths {
+		file := p.Data.PartFiles[i]
+		h, err := data.HeaderDialect(path, p.Data.Dialect())
+		if err != nil {
+			var de *data.Error
+			if errors.As(err, &de) && de.Line == 0 && strings.HasPrefix(de.Msg, "cannot open file") {
+				where := ""
+				if path != filepath.Clean(filepath.FromSlash(file)) {
+					where = " (looked for " + path + ")"
+				}
+				if strings.ContainsAny(file, "*?[") {
+					d.errAt("data.parts", "the pattern %s matches no file%s", strconv.Quote(file), where)
+				} else {
+					d.errAt("data.parts", "cannot open the part %s%s: %s", strconv.Quote(file), where, openReason(de.Err))
+				}
+				ok = false
+			}
+			continue // other problems with a part are the reader's to name
+		}
+		if i == 0 {
+			first = h
+			if msg := suggestDialect(path, p.Data.Dialect()); msg != "" {
+				key := "data.delimiter"
+				if !strings.Contains(msg, "delimiter: ") {
+					key = "data.decimal"
+				}
+				d.errAt(key, "data part %s: %s", file, msg)
+				ok = false
+			}
+		} else if first != nil {
+			if msg := data.OtherColumns(first, h); msg != "" {
+				d.errAt("data.parts", "the part %s has other columns than the first part %s (%s); every part must have the same columns", file, p.Data.PartFiles[0], msg)
+				ok = false
+			}
+		}
+	}
+	return first, ok && first != nil
+}
+
+// suggestDialect is what check suggests for a CSV file read in the
+// dialect d ("" for a workbook, a Parquet file, or nothing to suggest).
+func suggestDialect(path string, dl data.Dialect) string {
+	if data.IsWorkbook(path) || data.IsParquet(path) {
+		return ""
+	}
+	raw, err := data.ReadFile(path)
+	if err != nil {
+		return ""
+	}
+	return data.SuggestDialect(raw, dl)
+}
+
+// dataHeader reads the header of data.file, reporting a file that cannot
+// be opened and a dialect that does not fit it.
+func (d *decoder) dataHeader(p *Plan) ([]string, bool) {
 	if p.Data.Path == "" || !d.clean("data.file") {
-		return
+		return nil, false
 	}
 	header, err := data.HeaderDialect(p.Data.Path, p.Data.Dialect())
 	if err == nil && !data.IsWorkbook(p.Data.Path) && !data.IsParquet(p.Data.Path) {
@@ -30,7 +122,7 @@ func (d *decoder) checkDataColumns(p *Plan) {
 					key = "data.decimal"
 				}
 				d.errAt(key, "data file %s: %s", p.Data.File, msg)
-				return
+				return nil, false
 			}
 		}
 	}
@@ -43,13 +135,20 @@ func (d *decoder) checkDataColumns(p *Plan) {
 			}
 			d.errAt("data.file", "cannot open the data file %s%s: %s", strconv.Quote(p.Data.File), where, openReason(de.Err))
 		}
-		return
+		return nil, false
 	}
+	return header, true
+}
+
+// checkHeader reports every column the plan names (outcomes, predictors,
+// weights, offset, cluster, subset, rules) that the data's header lacks,
+// at the key that names it.
+func (d *decoder) checkHeader(p *Plan, header []string) {
 	missing := func(key, col string) {
 		if col == "" || !d.clean(key) || slices.Contains(header, col) {
 			return
 		}
-		d.errAt(key, "column %s is not in the data file %s%s", quote(col), p.Data.File, columnHint(col, header))
+		d.errAt(key, "column %s is not in the data file %s%s", quote(col), p.Data.Name(), columnHint(col, header))
 	}
 	for i, o := range p.Outcomes {
 		missing(itemPath("outcomes", i)+".column", o.Column)

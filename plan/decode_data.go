@@ -2,6 +2,8 @@ package plan
 
 import (
 	"path/filepath"
+	"sort"
+	"strings"
 
 	"ordplan/runner/data"
 	"ordplan/runner/impute/chained"
@@ -23,10 +25,23 @@ func (d *decoder) decodeData(n *yaml.Node, data *Data) {
 	if m == nil {
 		return
 	}
-	if v := m.required("file"); v != nil {
+	if v := m.get("file"); v != nil {
 		if s, ok := d.name(v, "data.file"); ok {
 			data.File = s
 		}
+	}
+	if v := m.get("parts"); v != nil && d.nonEmpty(v, "data.parts", "part (a file name or pattern)") {
+		data.Parts, _ = d.names(v, "data.parts")
+	}
+	where := m.node
+	if where == nil {
+		where = d.near("data")
+	}
+	switch {
+	case m.get("file") != nil && m.get("parts") != nil:
+		d.errorf(where, "data", "give either file (one data file) or parts (the data as several files with the same columns), not both")
+	case m.get("file") == nil && m.get("parts") == nil:
+		d.errorf(where, "data.file", "required key is missing (or give parts: the data as several files with the same columns)")
 	}
 	m.word("missing", "missing-data mode", missingWords, &data.Missing)
 	if v := m.get("missing_values"); v != nil {
@@ -50,6 +65,9 @@ func (d *decoder) decodeData(n *yaml.Node, data *Data) {
 	m.name("cluster", &data.Cluster)
 	if v := m.get("imputed"); v != nil {
 		data.Imputed = d.decodeImputed(v)
+		if data.Parts != nil {
+			d.errorf(v, "data.imputed", "imputed data are not read with data.parts: give the original data as one file (data.file)")
+		}
 	}
 	if v := m.get("imputation"); v != nil {
 		data.Imputation = d.decodeImputation(v)
@@ -107,6 +125,35 @@ func (d *decoder) decodeImputation(n *yaml.Node) *Imputation {
 	}
 	m.boolean("convergence_table", &im.ConvergenceTable)
 	return im
+}
+
+// expandParts resolves data.parts: names against the plan's folder, a
+// pattern (with * ? or [) into its matches in name order, named relative
+// to the folder as the pattern is. A pattern that matches nothing stays
+// as written, for checkParts to report.
+func expandParts(dir string, parts []string) (files, paths []string) {
+	for _, pat := range parts {
+		full := resolveDataPath(dir, pat)
+		var matches []string
+		if strings.ContainsAny(pat, "*?[") {
+			matches, _ = filepath.Glob(full)
+			sort.Strings(matches)
+		}
+		if len(matches) == 0 {
+			files, paths = append(files, pat), append(paths, full)
+			continue
+		}
+		for _, m := range matches {
+			name := m
+			if !filepath.IsAbs(filepath.FromSlash(pat)) {
+				if rel, err := filepath.Rel(dir, m); err == nil {
+					name = filepath.ToSlash(rel)
+				}
+			}
+			files, paths = append(files, name), append(paths, m)
+		}
+	}
+	return files, paths
 }
 
 var (

@@ -6,6 +6,9 @@ import "ordplan/runner/fit"
 // section. Simple defaults are set while decoding.
 func (d *decoder) applyDefaults(p *Plan) {
 	p.Data.Path = resolveDataPath(p.Dir, p.Data.File)
+	if p.Data.Parts != nil {
+		p.Data.PartFiles, p.Data.PartPaths = expandParts(p.Dir, p.Data.Parts)
+	}
 	if im := p.Data.Imputed; im != nil {
 		im.Path = resolveDataPath(p.Dir, im.File)
 		im.Paths = nil

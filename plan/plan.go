@@ -40,18 +40,23 @@ type Plan struct {
 
 // Data says where the observations are and how to read them.
 type Data struct {
-	File          string   // required; as written in the plan
-	Path          string   // File resolved against Plan.Dir
-	Missing       string   // "drop" (default), "refuse" or "impute" (MissingImpute)
-	MissingValues []string // nil = reader default; empty = nothing counts as missing
-	Delimiter     string   // "comma" (default), "semicolon" or "tab"
-	Decimal       string   // decimal mark: "point" (default) or "comma"
-	Sheet         string   // .xlsx worksheet ("" = the first)
-	HeaderRow     int      // .xlsx header row (0 = the first row)
-	Weights       string   // column, optional
-	WeightKind    string   // "frequency" (default) or "sampling"
-	Offset        string   // column, optional
-	Cluster       string   // column, optional
+	File string // as written in the plan (required unless Parts)
+	Path string // File resolved against Plan.Dir
+	// Parts are the data as several files with the same columns, as
+	// written (names or patterns); PartFiles each part as named (a
+	// pattern's matches relative to the plan's folder, in name order) and
+	// PartPaths resolved. A pattern that matches nothing stays as written.
+	Parts, PartFiles, PartPaths []string
+	Missing                     string   // "drop" (default), "refuse" or "impute" (MissingImpute)
+	MissingValues               []string // nil = reader default; empty = nothing counts as missing
+	Delimiter                   string   // "comma" (default), "semicolon" or "tab"
+	Decimal                     string   // decimal mark: "point" (default) or "comma"
+	Sheet                       string   // .xlsx worksheet ("" = the first)
+	HeaderRow                   int      // .xlsx header row (0 = the first row)
+	Weights                     string   // column, optional
+	WeightKind                  string   // "frequency" (default) or "sampling"
+	Offset                      string   // column, optional
+	Cluster                     string   // column, optional
 	// Imputed names multiply imputed versions of the data (nil: none):
 	// File then holds the original data with its missing values.
 	Imputed *Imputed
@@ -234,6 +239,37 @@ func (m Models) HasEffects(s fit.Structure) bool { return slices.Contains(m.Effe
 
 // Backward reports whether stage models run backward.
 func (m Models) Backward() bool { return m.Direction == "backward" }
+
+// SetFile makes the data one file (named file, read at path), in place
+// of the plan's file or parts: simulated data.
+func (d *Data) SetFile(file, path string) {
+	d.File, d.Path = file, path
+	d.Parts, d.PartFiles, d.PartPaths = nil, nil, nil
+}
+
+// Paths are the files the data are read from: the parts, or the file.
+func (d *Data) Paths() []string {
+	if d.Parts != nil {
+		return d.PartPaths
+	}
+	return []string{d.Path}
+}
+
+// Files are the data files as the plan names them: the parts, or the file.
+func (d *Data) Files() []string {
+	if d.Parts != nil {
+		return d.PartFiles
+	}
+	return []string{d.File}
+}
+
+// Name names the data in messages: the file, or the parts.
+func (d *Data) Name() string {
+	if d.Parts != nil {
+		return data.PartsName(d.PartFiles)
+	}
+	return d.File
+}
 
 // Dialect is how the data file writes fields and numbers.
 func (d *Data) Dialect() data.Dialect {

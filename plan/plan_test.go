@@ -162,7 +162,7 @@ func TestBadPlans(t *testing.T) {
 		{"unknown top key", "", "colour: blue\n",
 			[]string{`bad.yaml:12:1: colour: unknown key "colour" (allowed: version, title, seed, data,`}},
 		{"unknown nested key", "  file: d.csv\n", "  file: d.csv\n  sep: ';'\n",
-			[]string{`bad.yaml:4:3: data.sep: unknown key "sep" (allowed: file, missing, missing_values,`}},
+			[]string{`bad.yaml:4:3: data.sep: unknown key "sep" (allowed: file, parts, missing, missing_values,`}},
 		{"duplicate key", "", "title: a\ntitle: b\n",
 			[]string{`bad.yaml:13:1: title: key is given twice (first at line 12)`}},
 		{"missing version", "version: 1\n", "",

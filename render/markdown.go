@@ -17,8 +17,8 @@ func build(r *runner.Result, dec *runner.Decisions, changes []string) *doc {
 	d.h(1, reportTitle(r))
 	writeSimulated(d, r)
 	writeRegistration(d, r)
-	d.p("This report was written by ordplan %s from the plan `%s` (sha256 `%s`) and the data file `%s` (sha256 `%s`). The plan fixed the candidate models and the decision rules before the models were fitted; the same plan and data give this report byte for byte.",
-		r.Version, dec.Plan.File, p.Hash, p.Data.File, r.DataHash)
+	d.p("This report was written by ordplan %s from the plan `%s` (sha256 `%s`) and %s. The plan fixed the candidate models and the decision rules before the models were fitted; the same plan and data give this report byte for byte.",
+		r.Version, dec.Plan.File, p.Hash, dataSentence(r))
 	if r.Started != "" {
 		d.p("Run started at %s (the plan asks for a timestamp, so reruns differ in this line and in run.json).", r.Started)
 	}
@@ -148,4 +148,26 @@ func joinWords[T fmt.Stringer](xs []T) string {
 		out[i] = x.String()
 	}
 	return strings.Join(out, ", ")
+}
+
+// dataSentence names the data of a run with their hash: the data file, or
+// the parts (each part's hash is in run.json and decisions.json).
+func dataSentence(r *runner.Result) string {
+	if r.DataParts == nil {
+		return fmt.Sprintf("the data file `%s` (sha256 `%s`)", r.Plan.Data.File, r.DataHash)
+	}
+	return fmt.Sprintf("the data held as %d parts read as one data set, %s (sha256 of the parts' sha256s `%s`; each part's in run.json)",
+		len(r.DataParts), partList(r), r.DataHash)
+}
+
+// partList names the parts of a run's data, the first and last of many.
+func partList(r *runner.Result) string {
+	var names []string
+	for _, p := range r.DataParts {
+		names = append(names, "`"+p.File+"`")
+	}
+	if len(names) > 6 {
+		names = append(names[:3], "...", names[len(names)-1])
+	}
+	return strings.Join(names, ", ")
 }

@@ -222,7 +222,7 @@ func writeReproducibility(d *doc, r *runner.Result) {
 		{"Operating system / architecture", r.Platform},
 		{"Command line", cmd},
 		{"Plan", fmt.Sprintf("`%s`, SHA-256 `%s`", p.Path, p.Hash)},
-		{"Data", fmt.Sprintf("`%s`, SHA-256 `%s`", p.Data.File, r.DataHash)},
+		{"Data", dataCell(r)},
 		{"Seed", fmt.Sprint(p.Seed)},
 	}
 	d.captioned("What produced this report").table([]string{"Item", "Value"}, rows)
@@ -236,4 +236,12 @@ func wordList[T fmt.Stringer](xs []T) []string {
 		out[i] = x.String()
 	}
 	return out
+}
+
+// dataCell is the data row of the reproducibility table.
+func dataCell(r *runner.Result) string {
+	if r.DataParts == nil {
+		return fmt.Sprintf("`%s`, SHA-256 `%s`", r.Plan.Data.File, r.DataHash)
+	}
+	return fmt.Sprintf("%d parts (%s), SHA-256 of their SHA-256s `%s`", len(r.DataParts), partList(r), r.DataHash)
 }

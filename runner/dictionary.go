@@ -32,5 +32,10 @@ func ValidateData(p *plan.Plan) error {
 		rules = append(rules, data.Rule{Column: e.Column, Key: e.Key, Numeric: kind == "numeric",
 			Range: e.Range, Values: e.Values, Missing: e.Missing})
 	}
-	return data.ValidateDialect(p.Data.Path, rules, p.Data.MissingValues, p.Data.Dialect())
+	for _, path := range p.Data.Paths() {
+		if err := data.ValidateDialect(path, rules, p.Data.MissingValues, p.Data.Dialect()); err != nil {
+			return err
+		}
+	}
+	return nil
 }

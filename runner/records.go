@@ -37,8 +37,11 @@ type PlanRef struct {
 
 // DataRef names the data of a run.
 type DataRef struct {
-	File   string `json:"file"`
+	File   string `json:"file,omitempty"`
 	SHA256 string `json:"sha256"`
+	// Parts are the files of data held as parts, each with its SHA-256;
+	// SHA256 is then the SHA-256 of their hex SHA-256s, one per line.
+	Parts []DataRef `json:"parts,omitempty"`
 }
 
 // OutcomeDecisions is one outcome's part of decisions.json.
@@ -178,7 +181,7 @@ func BuildDecisions(r *Result) *Decisions {
 	p := r.Plan
 	d := &Decisions{Program: "ordplan", Version: r.Version,
 		Plan:    PlanRef{File: filepath.Base(p.Path), Title: p.Title, SHA256: p.Hash},
-		Data:    DataRef{File: p.Data.File, SHA256: r.DataHash},
+		Data:    dataRef(r),
 		NewRows: newRowsRef(r),
 		Notes:   nonNil(r.Notes), Registration: registrationRecord(r.Registration), Simulated: r.Simulated}
 	for _, or := range r.Outcomes {
@@ -289,7 +292,7 @@ type RunRecord struct {
 func RunJSON(r *Result, files map[string][]byte) ([]byte, error) {
 	rec := RunRecord{Program: "ordplan", Version: r.Version,
 		Plan: PlanRef{File: filepath.Base(r.Plan.Path), Title: r.Plan.Title, SHA256: r.Plan.Hash},
-		Data: DataRef{File: r.Plan.Data.File, SHA256: r.DataHash}, NewRows: newRowsRef(r), Imputed: r.Imputed, Seed: r.Plan.Seed, Outputs: map[string]string{}}
+		Data: dataRef(r), NewRows: newRowsRef(r), Imputed: r.Imputed, Seed: r.Plan.Seed, Outputs: map[string]string{}}
 	rec.Timestamp = r.Started
 	for _, or := range r.Outcomes {
 		if or.Imputed != nil && or.Imputed.Chained != nil {
@@ -311,4 +314,13 @@ func newRowsRef(r *Result) *DataRef {
 		return nil
 	}
 	return &DataRef{File: r.Plan.Inference.Predict, SHA256: r.NewRowsHash}
+}
+
+// dataRef is the record of the data a run read: the file and its hash, or
+// the parts with theirs.
+func dataRef(r *Result) DataRef {
+	if r.DataParts != nil {
+		return DataRef{SHA256: r.DataHash, Parts: r.DataParts}
+	}
+	return DataRef{File: r.Plan.Data.File, SHA256: r.DataHash}
 }

@@ -20,9 +20,11 @@ type Analysis struct {
 	// flags of `ordplan fit` the data file.
 	Source   string
 	Plan     bool   // resolved from a plan (messages then name plan keys)
-	DataFile string // the data file as the plan or the flag names it
+	DataFile string // the data file as the plan or the flag names it (for parts: PartsName)
 	DataPath string // where the data file is read
-	Outcomes []Reading
+	// DataPaths are the files of data held as parts (nil: DataPath).
+	DataPaths []string
+	Outcomes  []Reading
 	// Fit are the options of every fit: model-based errors (observed or
 	// expected information) and the workers of one fit.
 	Fit    fit.Options
@@ -120,9 +122,12 @@ func (r *Result) Errors() CovariancePolicy {
 
 // ResolvePlan resolves a validated plan.
 func ResolvePlan(p *plan.Plan) *Analysis {
-	a := &Analysis{Source: p.Path, Plan: true, DataFile: p.Data.File, DataPath: p.Data.Path,
+	a := &Analysis{Source: p.Path, Plan: true, DataFile: p.Data.Name(), DataPath: p.Data.Path,
 		Errors: covariancePolicy(p.Covariance, p.Data.Sampling()),
 		Models: p.Models, Tests: p.Tests, Rules: p.Rules, Inference: p.Inference, Level: p.Report.ConfidenceLevel}
+	if p.Data.Parts != nil {
+		a.DataPaths = p.Data.PartPaths
+	}
 	a.Fit = a.Errors.fitOptions(1) // the grid runs its fits in parallel
 	for _, oc := range p.Outcomes {
 		spec := p.DesignSpec(oc)
@@ -227,7 +232,7 @@ type Loaded struct {
 // its design, every data-determined constant frozen. A declared category
 // that no row used has is refused here, for every command alike.
 func (a *Analysis) Load(r Reading) (*Loaded, error) {
-	ds, err := data.Load(a.DataPath, r.Options)
+	ds, err := data.LoadFiles(a.Paths(), r.Options)
 	if err != nil {
 		if !a.Plan {
 			return nil, err
@@ -294,4 +299,12 @@ func (a *Analysis) Partitioned() error {
 		return errors.New("partitioned fits read numeric columns as they are: categorical columns, transformations and interactions need the whole data in one place (their constants come from all rows)")
 	}
 	return nil
+}
+
+// Paths are the files the data are read from: the parts, or the file.
+func (a *Analysis) Paths() []string {
+	if a.DataPaths != nil {
+		return a.DataPaths
+	}
+	return []string{a.DataPath}
 }

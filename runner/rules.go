@@ -447,8 +447,13 @@ type pointSet struct {
 func (env *ruleEnv) points(r plan.Rule) ([]float64, []float64, pointSet, error) {
 	d := env.or.FitData
 	if r.Grid == nil {
-		lines := env.or.Data.Lines
+		ds := env.or.Data
+		lines := ds.Lines
 		return d.X, d.Offset, pointSet{desc: fmt.Sprintf("over the %d rows used", d.N()), point: func(i int) string {
+			if i < len(lines) && ds.Parts != nil {
+				f, l := ds.Place(lines[i])
+				return fmt.Sprintf("the row on line %d of the data part %s", l, f)
+			}
 			if i < len(lines) {
 				return fmt.Sprintf("the row on line %d of the data file", lines[i])
 			}
@@ -681,7 +686,7 @@ func columnLabels(or *OutcomeResult, col string) ([]string, error) {
 	opt := or.dataOptions
 	opt.Cluster = col
 	opt.Refuse = false
-	ds2, err := data.Load(ds.File, opt)
+	ds2, err := data.LoadFiles(ds.Files(), opt)
 	if err != nil {
 		return nil, fmt.Errorf("reading column %q: %v", col, err)
 	}

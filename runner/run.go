@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"runtime"
 	"slices"
+	"strings"
 	"sync"
 	"time"
 
@@ -34,12 +35,12 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 	}
 	// The data file (and the new-rows file) are read once: every reader
 	// during the run parses the bytes whose hash the run records.
-	dataHash, unpin, err := data.Pin(p.Data.Path)
+	dataHash, parts, unpin, err := pinData(p)
 	if err != nil {
-		return nil, fmt.Errorf("%s: data.file: %v", p.Path, err)
+		return nil, err
 	}
 	defer unpin()
-	res := &Result{Plan: p, DataHash: dataHash, Version: Version,
+	res := &Result{Plan: p, DataHash: dataHash, DataParts: parts, Version: Version,
 		GoVersion: runtime.Version(), Platform: runtime.GOOS + "/" + runtime.GOARCH}
 	if p.Inference.PredictPath != "" {
 		h, unpinNew, err := data.Pin(p.Inference.PredictPath)
@@ -356,4 +357,47 @@ func (or *OutcomeResult) OnlyParallel(a fit.Comparison, term string, l fit.Link)
 		}
 	}
 	return nil
+}
+
+// pinData reads the data once (see data.Pin) and gives its hash: the
+// file's SHA-256, or for data held as parts the SHA-256 of the parts'
+// hex SHA-256s, one per line in order (PartsHash), with each part's hash.
+func pinData(p *plan.Plan) (string, []DataRef, func(), error) {
+	if p.Data.Parts == nil {
+		h, unpin, err := data.Pin(p.Data.Path)
+		if err != nil {
+			return "", nil, nil, fmt.Errorf("%s: data.file: %v", p.Path, err)
+		}
+		return h, nil, unpin, nil
+	}
+	var unpins []func()
+	unpinAll := func() {
+		for _, u := range unpins {
+			u()
+		}
+	}
+	var refs []DataRef
+	var hashes []string
+	for i, path := range p.Data.PartPaths {
+		h, unpin, err := data.Pin(path)
+		if err != nil {
+			unpinAll()
+			return "", nil, nil, fmt.Errorf("%s: data.parts: %s: %v", p.Path, p.Data.PartFiles[i], err)
+		}
+		unpins = append(unpins, unpin)
+		refs = append(refs, DataRef{File: p.Data.PartFiles[i], SHA256: h})
+		hashes = append(hashes, h)
+	}
+	return PartsHash(hashes), refs, unpinAll, nil
+}
+
+// PartsHash is the hash of data held as parts: the hex SHA-256 of the
+// parts' hex SHA-256s, each followed by a line end, in order (so that
+// `sha256sum a.csv b.csv | cut -c1-64 | sha256sum` gives it).
+func PartsHash(hashes []string) string {
+	var b strings.Builder
+	for _, h := range hashes {
+		b.WriteString(h + "\n")
+	}
+	return data.HashBytes([]byte(b.String()))
 }

@@ -1,6 +1,7 @@
 package runner
 
 import (
+	"errors"
 	"fmt"
 	"slices"
 	"strings"
@@ -15,10 +16,19 @@ import (
 func buildDesign(spec design.Spec, ds *data.Dataset) (*design.Design, *fit.Data, error) {
 	dz, err := design.Build(spec, ds.X, ds.N, ds.Weights, ds.Lines)
 	if err != nil {
+		var de *design.Error
+		if errors.As(err, &de) && de.Line > 0 && ds.Parts != nil {
+			e := *de
+			e.Line = 0
+			return nil, nil, fmt.Errorf("%s: %v", ds.Where(de.Line), &e)
+		}
 		return nil, nil, err
 	}
 	X, i, err := dz.Matrix(ds.X, ds.N)
 	if err != nil {
+		if ds.Parts != nil {
+			return nil, nil, fmt.Errorf("data %s: %v", ds.Where(ds.Lines[i]), err)
+		}
 		return nil, nil, fmt.Errorf("data line %d: %v", ds.Lines[i], err)
 	}
 	d := &fit.Data{Y: ds.Y, J: len(ds.Categories), X: X, Predictors: dz.Columns, Categories: ds.Categories,

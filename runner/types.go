@@ -12,7 +12,9 @@ import (
 // Result is everything a plan run produced, in plan order.
 type Result struct {
 	Plan     *plan.Plan
-	DataHash string // hex SHA-256 of the data file (of the bytes the run parsed)
+	DataHash string // hex SHA-256 of the data file (of the bytes the run parsed); of the parts' hashes for data.parts
+	// DataParts are the parts of data held as parts, with their hashes.
+	DataParts []DataRef
 	// NewRowsHash is the hex SHA-256 of the plan's new-rows file
 	// (inference.predict), "" when there is none.
 	NewRowsHash string

@@ -218,9 +218,12 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		"cr.csv": []byte(strings.ReplaceAll(csv, "\n", "\r")), "two.csv": []byte(two.String()),
 		"bad.xlsx": append([]byte("PK\x03\x04"), bytes.Repeat([]byte{7}, 200)...), "notzip.xlsx": []byte(csv),
 		"bad.parquet": []byte("PAR1garbagegarbagePAR1"), "notpq.parquet": []byte(csv),
-		"book.xlsx": toWorkbook(t, []byte(strings.ReplaceAll(csv, "safety", "y"))),
-		"new.csv":   []byte("a,b\n0.5,1\n-1,0\n"), "short.key": []byte("short\n"), "precious.txt": []byte("keep me\n"),
+		"book.xlsx":    toWorkbook(t, []byte(strings.ReplaceAll(csv, "safety", "y"))),
+		"parts/p1.csv": []byte(csv), "parts/p2.csv": []byte(csv), "otherpart.csv": []byte("y,a,z\n1,0.5,1\n"),
+		"emptypart.csv": []byte(strings.SplitAfter(csv, "\n")[0]),
+		"new.csv":       []byte("a,b\n0.5,1\n-1,0\n"), "short.key": []byte("short\n"), "precious.txt": []byte("keep me\n"),
 	}
+	os.MkdirAll(filepath.Join(dir, "parts"), 0o755)
 	for name, b := range files {
 		if err := os.WriteFile(filepath.Join(dir, name), b, 0o644); err != nil {
 			t.Fatal(err)
@@ -383,7 +386,7 @@ func catalogue(dir string) (items []badInput) {
 		{id: "P1", name: "unknown key", args: []string{"check"}, plan: edit("predictors:", "predictorz: [a]\npredictors:"), code: 1,
 			want: []string{`P1.yaml:6:1: predictorz: unknown key "predictorz" (allowed: version, title, seed, data, outcomes, subset, categorical, predictors, models, tests, rules, covariance, report, inference`}},
 		{id: "P2", name: "unknown nested key", args: []string{"check"}, plan: edit("  file: d.csv\n", "  file: d.csv\n  colour: red\n"), code: 1,
-			want: []string{`P2.yaml:4:3: data.colour: unknown key "colour" (allowed: file, missing, missing_values, delimiter, decimal, sheet, header_row, weights, weight_kind, offset, cluster, imputed, imputation)`}},
+			want: []string{`P2.yaml:4:3: data.colour: unknown key "colour" (allowed: file, parts, missing, missing_values, delimiter, decimal, sheet, header_row, weights, weight_kind, offset, cluster, imputed, imputation)`}},
 		{id: "P3", name: "wrong type: a number for a list", args: []string{"check"}, plan: edit("predictors: [a, b]", "predictors: 3"), code: 1,
 			want: []string{`P3.yaml:6:13: predictors: want a list, got number 3`}},
 		{id: "P4", name: "wrong type: text for a number", args: []string{"check"}, plan: edit("{by: aic}", "{by: aic, margin: wide}"), code: 1,
@@ -555,6 +558,20 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`notpq.parquet: is not a Parquet file (it does not start and end with PAR1): convert it to Parquet, or give the file a .csv name if it is CSV text`}},
 		{id: "X7", name: "--sheet or --header-row with a file that is not a workbook", args: fitArgs(d("semi.csv"), "--predictors", "a,b", "--sheet", "survey"), code: 2,
 			want: []string{`ordplan fit: --sheet and --header-row are for .xlsx workbooks; the data file is not named *.xlsx`}},
+		{id: "X8", name: "data.parts: an empty list", args: []string{"check"}, plan: edit("file: d.csv", "parts: []"), code: 1,
+			want: []string{`X8.yaml:3:10: data.parts: list is empty; give at least one part (a file name or pattern)`}},
+		{id: "X9", name: "data.parts: a part that does not exist", args: []string{"check"}, plan: edit("file: d.csv", "parts: [d.csv, gone.csv]"), code: 1,
+			want: []string{`X9.yaml:3:10: data.parts: cannot open the part "gone.csv" (looked for `, `gone.csv): no such file or directory`}},
+		{id: "X10", name: "data.parts: a pattern that matches no file", args: []string{"check"}, plan: edit("file: d.csv", "parts: [d.csv, nothere/*.csv]"), code: 1,
+			want: []string{`X10.yaml:3:10: data.parts: the pattern "nothere/*.csv" matches no file (looked for `}},
+		{id: "X11", name: "data.parts: a part with other columns", args: []string{"check"}, plan: edit("file: d.csv", "parts: [parts/p1.csv, otherpart.csv]"), code: 1,
+			want: []string{`X11.yaml:3:10: data.parts: the part otherpart.csv has other columns than the first part parts/p1.csv (it lacks "b"`, `; it has "z" besides); every part must have the same columns`}},
+		{id: "X12", name: "data.parts: a part given twice (by a pattern and by name)", args: []string{"check"}, plan: edit("file: d.csv", "parts: [parts/*.csv, parts/p2.csv]"), code: 1,
+			want: []string{`X12.yaml:3:10: data.parts: the part "parts/p2.csv" comes twice from the list (a pattern and a name, or two patterns, both give it); every part is read once`}},
+		{id: "X13", name: "data.parts: a part with a header and no rows", args: []string{"run"}, plan: edit("file: d.csv", "parts: [parts/p1.csv, emptypart.csv]"), code: 1,
+			want: []string{`emptypart.csv: no data rows after the header; every part needs rows (leave an empty part out of data.parts)`}},
+		{id: "X14", name: "data.parts with data.file, or with data.imputed", args: []string{"check"}, plan: edit("file: d.csv", "file: d.csv\n  parts: [parts/p1.csv]"), code: 1,
+			want: []string{`X14.yaml:3:3: data: give either file (one data file) or parts (the data as several files with the same columns), not both`}},
 		{id: "D17", name: "lines ending in CR alone", args: fitArgs(d("cr.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`cr.csv: ends its lines with a carriage return alone (CR, an old Mac format): convert the line ends to LF or CRLF`}},
 

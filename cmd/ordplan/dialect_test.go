@@ -445,3 +445,92 @@ func columnsByName(t *testing.T, b []byte) map[string][]string {
 	}
 	return out
 }
+
+// A plan whose data are held as parts (data.parts: names and a pattern;
+// CSV, a workbook and a Parquet file; one part with its columns in another
+// order) gives the decisions.json of the concatenated file, byte for byte
+// but for the data's record: each part with its hash, and the hash of
+// their hashes.
+func TestPartsGiveIdenticalDecisions(t *testing.T) {
+	raw, err := os.ReadFile(filepath.Join("..", "..", "plans", "data", "quietstreets.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(raw)), "\n")
+	head, rows := lines[0], lines[1:]
+	n := len(rows)
+	chunk := func(a, b int) []byte { return []byte(head + "\n" + strings.Join(rows[a:b], "\n") + "\n") }
+	// The third part lists its columns in reverse order.
+	reversed := func(b []byte) []byte {
+		var out []string
+		for _, ln := range strings.Split(strings.TrimSpace(string(b)), "\n") {
+			f := strings.Split(ln, ",")
+			slices.Reverse(f)
+			out = append(out, strings.Join(f, ","))
+		}
+		return []byte(strings.Join(out, "\n") + "\n")
+	}
+	dir := t.TempDir()
+	os.MkdirAll(filepath.Join(dir, "parts"), 0o755)
+	files := map[string][]byte{
+		"all.csv":           raw,
+		"parts/p1.csv":      chunk(0, n/5),
+		"parts/p2.csv":      chunk(n/5, 2*n/5),
+		"parts/p3.csv":      reversed(chunk(2*n/5, 3*n/5)),
+		"extra/p4.parquet":  toParquet(t, chunk(3*n/5, 4*n/5)),
+		"extra/p5.xlsx":     toWorkbook(t, chunk(4*n/5, n)),
+		"extra/ignored.txt": []byte("not a part\n"),
+	}
+	for name, b := range files {
+		os.MkdirAll(filepath.Dir(filepath.Join(dir, name)), 0o755)
+		if err := os.WriteFile(filepath.Join(dir, name), b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	run := func(file, extra string) []byte {
+		t.Helper()
+		d := t.TempDir()
+		p := dialectPlan(t, d, file, extra)
+		src, _ := os.ReadFile(p)
+		if file == "" {
+			src = bytes.Replace(src, []byte("  file: \n"), nil, 1)
+		}
+		p = filepath.Join(dir, "plan.yaml") // the same name for both plans
+		os.WriteFile(p, src, 0o644)
+		out := filepath.Join(d, "out")
+		if stdout, stderr, code := runCLI("run", p, "--out", out, "--quiet"); code != 0 {
+			t.Fatalf("%s: exit %d: %s %s", p, code, stdout, stderr)
+		}
+		b, err := os.ReadFile(filepath.Join(out, "decisions.json"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		b = bytes.ReplaceAll(b, []byte(planHash(t, p)), []byte("PLANHASH"))
+		if file == "" {
+			rj, _ := os.ReadFile(filepath.Join(out, "run.json"))
+			for _, f := range []string{"parts/p1.csv", "parts/p3.csv", "extra/p4.parquet", "extra/p5.xlsx"} {
+				if !bytes.Contains(rj, []byte(`"file": "`+f+`",`+"\n"+`        "sha256": "`+HashHex(files[f])+`"`)) {
+					t.Errorf("run.json lacks the part %s with its hash:\n%s", f, rj)
+				}
+			}
+			var hs []string
+			for _, f := range []string{"parts/p1.csv", "parts/p2.csv", "parts/p3.csv", "extra/p4.parquet", "extra/p5.xlsx"} {
+				hs = append(hs, HashHex(files[f])+"\n")
+			}
+			if all := HashHex([]byte(strings.Join(hs, ""))); !bytes.Contains(rj, []byte(all)) || !bytes.Contains(b, []byte(all)) {
+				t.Errorf("run.json or decisions.json lacks the hash of the parts' hashes %s", all)
+			}
+		}
+		// The data's record differs; everything else must not.
+		i := bytes.Index(b, []byte(`  "data": {`))
+		j := bytes.Index(b[i:], []byte("\n  },\n"))
+		return append(append([]byte{}, b[:i]...), b[i+j:]...)
+	}
+	want := run("all.csv", "  sheet: survey\n  header_row: 3\n")
+	got := run("", "  parts: [parts/*.csv, extra/p4.parquet, extra/p5.xlsx]\n  sheet: survey\n  header_row: 3\n")
+	if !bytes.Equal(got, want) {
+		os.WriteFile("/tmp/partsA.json", want, 0o644)
+		os.WriteFile("/tmp/partsB.json", got, 0o644)
+		t.Errorf("decisions.json differs between the parts and the concatenated file (see /tmp/partsA.json, /tmp/partsB.json)")
+	}
+}

@@ -74,8 +74,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	}
 	defer os.RemoveAll(tmp)
 	q := *p
-	q.Data.File = simulatedFile
-	q.Data.Path = filepath.Join(tmp, simulatedFile)
+	q.Data.SetFile(simulatedFile, filepath.Join(tmp, simulatedFile))
 	if err := os.WriteFile(q.Data.Path, buf.Bytes(), 0o644); err != nil {
 		return fail(stderr, err)
 	}

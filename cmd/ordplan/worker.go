@@ -107,6 +107,9 @@ func runPlan(p *plan.Plan, opt runner.Options, cfg *queue.Config, deadline time.
 	}
 	defer c.Close()
 	c.JobDeadline = deadline
+	if p.Data.Parts != nil {
+		return nil, fmt.Errorf("%s: data.parts: ordplan run --queue does not send data held as parts to workers yet; run the plan without --queue, or give the data as one file (data.file)", p.Path)
+	}
 	co := queue.NewCoordinator(ctx, c, p.Hash, log)
 	if _, err := co.AddData(p.Data.Path); err != nil {
 		return nil, fmt.Errorf("%s: data.file: %v", p.Path, err)

@@ -163,7 +163,7 @@ func (p *partRecords) open(k int) error {
 	p.spans = append(p.spans, PartSpan{File: path, Offset: offset, Last: 1})
 	if k == 0 {
 		p.header = names
-	} else if msg := sameColumns(p.header, names); msg != "" {
+	} else if msg := OtherColumns(p.header, names); msg != "" {
 		return &partError{&Error{File: path, Line: 1, Msg: fmt.Sprintf("has other columns than the first part %s (%s); every part must have the same columns", p.paths[0], msg)}}
 	}
 	p.perm = make([]int, len(p.header))
@@ -174,9 +174,9 @@ func (p *partRecords) open(k int) error {
 	return nil
 }
 
-// sameColumns says how names differ from the header as a set ("" when
-// they do not).
-func sameColumns(header, names []string) string {
+// OtherColumns says how names differ from the header as a set ("" when
+// they do not): "it lacks ...; it has ... besides".
+func OtherColumns(header, names []string) string {
 	var lack, extra []string
 	for _, h := range header {
 		if !slices.Contains(names, h) {

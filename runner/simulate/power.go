@@ -203,8 +203,7 @@ func runReplicate(p *plan.Plan, sim *Sim, n, r int, path string, opt PowerOption
 		return replicate{err: err.Error()}
 	}
 	q := *p
-	q.Data.Path = path
-	q.Data.File = fmt.Sprintf("simulated n=%d replicate %d", n, r+1)
+	q.Data.SetFile(fmt.Sprintf("simulated n=%d replicate %d", n, r+1), path)
 	run := opt.Run
 	if run == nil {
 		run = func(q *plan.Plan) (*runner.Result, error) { return runner.Run(q, runner.Options{Workers: 1}) }
