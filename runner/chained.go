@@ -52,7 +52,7 @@ type ImputationProgress interface {
 func chainedSets(p *plan.Plan, a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Dataset, *design.Design, error) {
 	spec, dopt := r.Design, r.Options
 	dopt.Refuse, dopt.KeepIncomplete = false, true
-	ds, err := data.Load(a.DataPath, dopt)
+	ds, err := data.LoadFiles(a.Paths(), dopt)
 	if err != nil {
 		return nil, nil, nil, fmt.Errorf("%s (plan %s, outcome %q%s)", err, a.Source, r.Outcome, r.keyOf(err))
 	}

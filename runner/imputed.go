@@ -455,7 +455,7 @@ func runImputedOutcome(p *plan.Plan, an *Analysis, r Reading, oc plan.Outcome, o
 	ds := *sets[0]
 	if !p.Data.Imputes() {
 		// The original file: its missing values are described in the report.
-		orig, err := data.Load(an.DataPath, r.Options)
+		orig, err := data.LoadFiles(an.Paths(), r.Options)
 		if err != nil {
 			return nil, fmt.Errorf("%s (plan %s, outcome %q)", err, p.Path, oc.Column)
 		}
