@@ -103,58 +103,6 @@ func (s Spec) Model() (fit.Model, error) {
 	return m, nil
 }
 
-// ParseGroups reads constraint groups written as "name:a,b;other:c" (or
-// "a,b" for a single unnamed group).
-func ParseGroups(s string) ([]Group, error) {
-	var out []Group
-	if strings.TrimSpace(s) == "" {
-		return nil, nil
-	}
-	names := map[string]bool{}
-	for _, part := range strings.Split(s, ";") {
-		part = strings.TrimSpace(part)
-		if part == "" {
-			continue
-		}
-		g := Group{}
-		if i := strings.Index(part, ":"); i >= 0 {
-			g.Name = strings.TrimSpace(part[:i])
-			part = part[i+1:]
-			if g.Name == "" {
-				return nil, fmt.Errorf("constraint group %q has an empty name", part)
-			}
-		}
-		if names[g.Name] {
-			return nil, fmt.Errorf("constraint group %q is given twice", g.Name)
-		}
-		names[g.Name] = true
-		g.Predictors = SplitList(part)
-		if len(g.Predictors) == 0 {
-			return nil, fmt.Errorf("constraint group %q has no predictors", g.Name)
-		}
-		out = append(out, g)
-	}
-	if len(out) > 1 {
-		for i := range out {
-			if out[i].Name == "" {
-				return nil, fmt.Errorf("with several constraint groups every group needs a name (name:a,b;other:c)")
-			}
-		}
-	}
-	return out, nil
-}
-
-// SplitList splits "a, b,c" into its trimmed, non-empty items.
-func SplitList(s string) []string {
-	var out []string
-	for _, p := range strings.Split(s, ",") {
-		if p = strings.TrimSpace(p); p != "" {
-			out = append(out, p)
-		}
-	}
-	return out
-}
-
 // sortedKeys returns the keys of a map in order.
 func sortedKeys[V any](m map[string]V) []string {
 	ks := make([]string, 0, len(m))

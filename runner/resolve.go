@@ -207,8 +207,10 @@ func ResolveFit(s SingleFit) (*Analysis, error) {
 }
 
 // readSources adds the raw columns a design reads to the data options,
-// categorical ones with their levels.
+// categorical ones with their levels, and writes the header row of a
+// sheet one way (0 and 1 both mean the first row).
 func readSources(dopt data.Options, spec design.Spec) data.Options {
+	dopt.Dialect.HeaderRow = max(dopt.Dialect.HeaderRow, 1)
 	for _, s := range spec.Sources {
 		dopt.Predictors = append(dopt.Predictors, s.Name)
 		if s.Cat != nil {

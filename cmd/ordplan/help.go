@@ -8,7 +8,6 @@ import (
 	"strings"
 
 	"ordplan/plan"
-	"ordplan/runner"
 )
 
 // command describes one subcommand for `ordplan help`: what it does, how
@@ -49,7 +48,7 @@ var commands = []command{
 			"confidence-level": "--confidence-level 0.9", "json": "--json",
 			"queue": "--queue nats://10.0.0.5:4222 --partitions a.csv,b.csv", "partitions": "--partitions part1.csv,part2.csv",
 		},
-		more: func() string { return runner.CompactHelp }},
+		more: func() string { return compactHelp }},
 	{name: "init", args: "PLAN.yaml [flags]", summary: "write a commented plan skeleton from a data file or a header line",
 		examples: map[string]string{"data": "--data survey.csv", "header": `--header "id,y,age,sex"`, "outcome": "--outcome y",
 			"delimiter": "--data survey.csv --delimiter semicolon --decimal comma", "decimal": "--data survey.csv --delimiter semicolon --decimal comma",

@@ -155,7 +155,7 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		return fail(stderr, err)
 	}
 	if *f.partitions != "" || *f.queue.url != "" {
-		return fitPartitioned(s, f.queue, runner.SplitList(*f.partitions), *f.asJSON, *f.level, stdout, stderr)
+		return fitPartitioned(s, f.queue, splitList(*f.partitions), *f.asJSON, *f.level, stdout, stderr)
 	}
 	res, ds, checks, err := runner.FitOneChecked(s)
 	if err != nil {
@@ -244,7 +244,7 @@ func (f *fitFlags) usageProblem(fs *flag.FlagSet) string {
 
 // workbooks reports whether the data files are .xlsx workbooks.
 func (f *fitFlags) workbooks() bool {
-	files := runner.SplitList(*f.partitions)
+	files := splitList(*f.partitions)
 	if *f.dataFile != "" {
 		files = append(files, *f.dataFile)
 	}
@@ -258,7 +258,7 @@ func (f *fitFlags) workbooks() bool {
 
 // single is the model and data the flags describe.
 func (f *fitFlags) single() (runner.SingleFit, error) {
-	dspec, err := runner.ParseCompactTerms(*f.predictors)
+	dspec, err := parseCompactTerms(*f.predictors)
 	if err != nil {
 		return runner.SingleFit{}, fmt.Errorf("--predictors: %w", err)
 	}
@@ -266,16 +266,16 @@ func (f *fitFlags) single() (runner.SingleFit, error) {
 	for _, t := range dspec.Terms {
 		termNames = append(termNames, t.Name)
 	}
-	s := runner.SingleFit{DataFile: *f.dataFile, Outcome: *f.outcome, Categories: runner.SplitList(*f.categories),
+	s := runner.SingleFit{DataFile: *f.dataFile, Outcome: *f.outcome, Categories: splitList(*f.categories),
 		Predictors: termNames, Design: &dspec, Approach: f.approach, Backward: *f.direction == "backward",
-		Link: f.link, Nonparallel: runner.SplitList(*f.nonparallel), Weights: *f.weights, Offset: *f.offset,
+		Link: f.link, Nonparallel: splitList(*f.nonparallel), Weights: *f.weights, Offset: *f.offset,
 		Refuse: *f.missing == "refuse", Covariance: f.covariance, Cluster: *f.cluster, Sampling: *f.weightKind == "sampling"}
 	s.Dialect, _ = data.ParseDialect(*f.delimiter, *f.decimal) // checked in usageProblem
 	s.Dialect.Sheet, s.Dialect.HeaderRow = *f.sheet, *f.headerRow
 	if *f.allFree {
 		s.Nonparallel = s.Predictors
 	}
-	groups, err := runner.ParseGroups(*f.constrained)
+	groups, err := parseGroups(*f.constrained)
 	if err != nil {
 		return s, fmt.Errorf("--constrained: %w", err)
 	}

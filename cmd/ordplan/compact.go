@@ -1,4 +1,4 @@
-package runner
+package main
 
 import (
 	"fmt"
@@ -6,12 +6,13 @@ import (
 	"strconv"
 	"strings"
 
+	"ordplan/runner"
 	"ordplan/runner/design"
 )
 
-// CompactHelp documents the command line's compact form of predictor
+// compactHelp documents the command line's compact form of predictor
 // terms (`ordplan fit --predictors`).
-const CompactHelp = `Predictor terms, comma separated (quote the whole list for the shell):
+const compactHelp = `Predictor terms, comma separated (quote the whole list for the shell):
   age                         a numeric column as it is
   site|levels=n/e/s/w         a categorical column with its levels (text in the data); options:
                               |ref=e (reference level; default the first), |coding=sum or
@@ -29,12 +30,12 @@ Transformations apply in this order: log or sqrt, centre, scale, polynomial or s
 named term, term.level (categorical), term.1, term.2 (polynomial, spline) and a&b (products);
 --nonparallel and --constrained name terms.`
 
-// ParseCompactTerms reads the compact form of predictor terms (see
-// CompactHelp) into the raw columns and terms of a design.
-func ParseCompactTerms(s string) (design.Spec, error) {
+// parseCompactTerms reads the compact form of predictor terms (see
+// compactHelp) into the raw columns and terms of a design.
+func parseCompactTerms(s string) (design.Spec, error) {
 	var spec design.Spec
 	names := map[string]bool{}
-	for i, item := range SplitList(s) {
+	for i, item := range splitList(s) {
 		t, src, err := parseCompactTerm(item, names)
 		if err != nil {
 			return spec, fmt.Errorf("predictor %d (%q): %v", i+1, item, err)
@@ -225,4 +226,56 @@ func parseCompactTerm(item string, earlier map[string]bool) (design.TermSpec, *d
 		return t, nil, fmt.Errorf("term name %q holds %q, which a column name cannot (use |as=name)", t.Name, t.Name[bad])
 	}
 	return t, src, nil
+}
+
+// parseGroups reads constraint groups written as "name:a,b;other:c" (or
+// "a,b" for a single unnamed group).
+func parseGroups(s string) ([]runner.Group, error) {
+	var out []runner.Group
+	if strings.TrimSpace(s) == "" {
+		return nil, nil
+	}
+	names := map[string]bool{}
+	for _, part := range strings.Split(s, ";") {
+		part = strings.TrimSpace(part)
+		if part == "" {
+			continue
+		}
+		g := runner.Group{}
+		if i := strings.Index(part, ":"); i >= 0 {
+			g.Name = strings.TrimSpace(part[:i])
+			part = part[i+1:]
+			if g.Name == "" {
+				return nil, fmt.Errorf("constraint group %q has an empty name", part)
+			}
+		}
+		if names[g.Name] {
+			return nil, fmt.Errorf("constraint group %q is given twice", g.Name)
+		}
+		names[g.Name] = true
+		g.Predictors = splitList(part)
+		if len(g.Predictors) == 0 {
+			return nil, fmt.Errorf("constraint group %q has no predictors", g.Name)
+		}
+		out = append(out, g)
+	}
+	if len(out) > 1 {
+		for i := range out {
+			if out[i].Name == "" {
+				return nil, fmt.Errorf("with several constraint groups every group needs a name (name:a,b;other:c)")
+			}
+		}
+	}
+	return out, nil
+}
+
+// splitList splits "a, b,c" into its trimmed, non-empty items.
+func splitList(s string) []string {
+	var out []string
+	for _, p := range strings.Split(s, ",") {
+		if p = strings.TrimSpace(p); p != "" {
+			out = append(out, p)
+		}
+	}
+	return out
 }
