@@ -49,3 +49,43 @@ func writeChained(d *doc, ch *runner.ChainedRecord, rows int) {
 	}
 	d.p("Multiple imputation assumes that the values are missing at random given the columns in the imputation models: whether a value is missing may depend on the outcome and the other columns observed, not on the missing value itself. That assumption cannot be checked from the data; if missingness depends on the unseen values (missing not at random), the pooled estimates can be biased, and a sensitivity analysis is needed.")
 }
+
+// imputationMethods is the methods paragraph's sentence on imputed data:
+// how the sets were made (by this run or elsewhere) and pooled.
+func imputationMethods(im *runner.ImputedRun, c *citer) string {
+	pool := func() string {
+		return fmt.Sprintf("Every model was fitted on each of the %d imputed data sets and the results were combined by Rubin's rules %s.", im.M, c.cite("rubin"))
+	}
+	ch := im.Chained
+	if ch == nil {
+		return pool()
+	}
+	sources := c.cite("rubin", "vanbuuren") // cited first: the text names them first
+	var models []string
+	seen := map[chained.Method]bool{}
+	for _, m := range ch.Models {
+		if seen[m.Method] {
+			continue
+		}
+		seen[m.Method] = true
+		w := modelWords[m.Method]
+		if m.Method == chained.MeanMatching {
+			w = fmt.Sprintf("predictive mean matching with %d donors %s", ch.Donors, c.cite("little"))
+		}
+		var cols []string
+		for _, o := range ch.Models {
+			if o.Method == m.Method {
+				cols = append(cols, o.Column)
+			}
+		}
+		models = append(models, fmt.Sprintf("%s for %s", w, joinAnd(cols)))
+	}
+	fallback := ""
+	for _, n := range ch.Notes {
+		if strings.Contains(n, "pseudo-observations") {
+			fallback = fmt.Sprintf(" Imputation models with perfect prediction were refitted with weighted pseudo-observations %s.", c.cite("augment"))
+		}
+	}
+	return fmt.Sprintf("The %d rows with a missing value in the outcome or a predictor were kept, and their missing values were multiply imputed by chained equations %s: %d imputed sets, each after %d iterations (seed %d), with %s, every model given the outcome and the other columns and its parameters drawn from their approximate posterior; transformations and interactions were computed from the imputed columns.%s The imputation assumes that values are missing at random given these columns. %s",
+		ch.RowsIncomplete, sources, ch.Sets, ch.Iterations, ch.Seed, strings.Join(models, "; "), fallback, pool())
+}

@@ -33,6 +33,10 @@ var references = []reference{
 	{"mckelvey", "McKelvey, R.D. & Zavoina, W. (1975). A statistical model for the analysis of ordinal level dependent variables. Journal of Mathematical Sociology 4:103-120."},
 	{"lipsitz", "Lipsitz, S.R., Fitzmaurice, G.M. & Molenberghs, G. (1996). Goodness-of-fit tests for ordinal response regression models. Applied Statistics 45:175-190."},
 	{"pulkstenis", "Pulkstenis, E. & Robinson, T.J. (2004). Goodness-of-fit tests for ordinal response regression models. Statistics in Medicine 23:999-1014."},
+	{"rubin", "Rubin, D.B. (1987). Multiple Imputation for Nonresponse in Surveys. Wiley."},
+	{"vanbuuren", "van Buuren, S. (2018). Flexible Imputation of Missing Data, 2nd ed. CRC Press."},
+	{"little", "Little, R.J.A. (1988). Missing-data adjustments in large surveys. Journal of Business and Economic Statistics 6:287-296."},
+	{"augment", "White, I.R., Daniel, R. & Royston, P. (2010). Avoiding bias due to perfect prediction in multiple imputation of incomplete categorical variables. Computational Statistics and Data Analysis 54:2267-2275."},
 }
 
 // citer numbers references in the order the text first cites them.
@@ -88,6 +92,9 @@ func writeMethods(d *doc, r *runner.Result) {
 			s = append(s, fmt.Sprintf("Of %d rows, %d were used; %d were dropped for missing values or zero weight before any model was fitted.", ds.RowsRead, ds.N, ds.RowsDropped))
 		default:
 			s = append(s, fmt.Sprintf("All %d rows were used.", ds.N))
+		}
+		if im := or.Imputed; im != nil {
+			s = append(s, imputationMethods(im, c))
 		}
 		var comps []string
 		for _, a := range p.Models.Approaches {
