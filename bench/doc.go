@@ -7,4 +7,5 @@
 //
 //	go run ./bench -out bench/README.md       # the full table (about 15 minutes here)
 //	go run ./bench -smoke                      # a small variant for CI
+//	go run ./bench -only targets               # the fitting engine's speed targets only
 package main

@@ -20,14 +20,22 @@ import (
 func main() {
 	out := flag.String("out", "", "write the Markdown report here (default: stdout)")
 	smoke := flag.Bool("smoke", false, "small sizes only (CI smoke test)")
-	only := flag.String("only", "", "run one part only: ingest (reading data files)")
+	only := flag.String("only", "", "run one part only: ingest (reading data files) or targets (the fitting engine's speed targets, the table of bench/README.md's first section)")
 	ingestRows := flag.Int("ingest-rows", 1_000_000, "rows of the files the ingest part reads")
 	ingestRepeats := flag.Int("ingest-repeats", 5, "readings of each file by each reader")
 	child := flag.String("ingest-child", "", "(internal) read this file once and print what was measured")
 	childMode := flag.String("ingest-mode", "load", "(internal) the reader of -ingest-child: load or stream")
 	childDelim := flag.String("ingest-delim", "", "(internal) the delimiter of -ingest-child")
 	childComma := flag.Bool("ingest-decimal-comma", false, "(internal) -ingest-child has a decimal comma")
+	speedRows := flag.Int("targets-rows", 1_000_000, "rows of the data of -only targets")
+	speedRepeats := flag.Int("targets-repeats", 3, "runs of each timing of -only targets (best and median reported)")
+	memChild := flag.String("memory-child", "", "(internal) fit this model in this process and print its peak memory")
+	memRows := flag.Int("memory-rows", 1_000_000, "(internal) rows of -memory-child")
 	flag.Parse()
+	if *memChild != "" {
+		runMemoryChild(*memChild, *memRows)
+		return
+	}
 	if *child != "" {
 		ingestChild(*child, *childMode, *childDelim, *childComma, 10)
 		return
@@ -48,6 +56,10 @@ func main() {
 	}
 	if *only == "ingest" {
 		ingest(w, cfg.ingestN, cfg.ingestRepeats)
+		return
+	}
+	if *only == "targets" {
+		targets(w, *speedRows, *speedRepeats)
 		return
 	}
 	run(w, cfg)

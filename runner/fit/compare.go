@@ -116,15 +116,27 @@ func (k *kernel) cumulative(L []float64, c int, g, h []float64) (float64, bool) 
 	if !(b > a) {
 		return math.Inf(-1), false
 	}
-	lp := logDiffCDF(k.link, a, b)
+	var lp, lfa, qa, lfb, qb float64
+	if k.link == Logit {
+		// Two exponentials and two logarithms serve the probability and
+		// both densities (the same values as the general path below).
+		pa, pb := newLogitPoint(a), newLogitPoint(b)
+		lp = logitDiff(pa, pb)
+		lfa, qa = pa.logDensity()
+		lfb, qb = pb.logDensity()
+	} else {
+		lp = logDiffCDF(k.link, a, b)
+		if !math.IsInf(lp, -1) && !math.IsNaN(lp) && (g != nil || h != nil) {
+			lfb, qb = k.link.logDensity(b)
+			lfa, qa = k.link.logDensity(a)
+		}
+	}
 	if math.IsInf(lp, -1) || math.IsNaN(lp) {
 		return lp, false
 	}
 	if g == nil && h == nil {
 		return lp, true
 	}
-	lfb, qb := k.link.logDensity(b)
-	lfa, qa := k.link.logDensity(a)
 	rb := math.Exp(lfb - lp)
 	ra := math.Exp(lfa - lp)
 	if g != nil {
@@ -272,14 +284,25 @@ func (k *kernel) adjacent(L []float64, c int, g, h []float64) (float64, bool) {
 	} else {
 		C, U = make([]float64, q), make([]float64, q)
 	}
+	// P_j = exp(s_j - lse), one exponential per category.
+	var pbuf [65]float64
+	var P []float64
+	if q+1 <= len(pbuf) {
+		P = pbuf[:q+1]
+	} else {
+		P = make([]float64, q+1)
+	}
+	for j := range P {
+		P[j] = math.Exp(s[j] - lse)
+	}
 	acc := 0.0
 	for m := 0; m < q; m++ {
-		acc += math.Exp(s[m] - lse)
+		acc += P[m]
 		C[m] = acc
 	}
 	acc = 0
 	for m := q - 1; m >= 0; m-- {
-		acc += math.Exp(s[m+1] - lse)
+		acc += P[m+1]
 		U[m] = acc
 	}
 	for m := 0; m < q; m++ {

@@ -186,41 +186,21 @@ func (p *problem) coefs(theta []float64) *coefs {
 // pieces (2) over all rows; expected=true uses the expected information.
 func (p *problem) evaluate(theta []float64, order int, expected bool) *acc {
 	c := p.coefs(theta)
-	n := p.d.n
-	nb := (n + blockRows - 1) / blockRows
+	nb := (p.d.n + blockRows - 1) / blockRows
 	if nb == 0 {
 		return p.newAcc(order)
 	}
 	parts := make([]*acc, nb)
-	workers := p.workers
-	if workers > nb {
-		workers = nb
-	}
-	var wg sync.WaitGroup
-	next := make(chan int, nb)
-	for b := 0; b < nb; b++ {
-		next <- b
-	}
-	close(next)
-	for w := 0; w < workers; w++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			s, _ := p.scratch.Get().(*scratch)
-			if s == nil {
-				s = p.newScratch()
-			}
-			defer p.scratch.Put(s)
-			for b := range next {
-				lo := b * blockRows
-				hi := min(lo+blockRows, n)
-				a := p.newAcc(order)
-				p.block(c, lo, hi, order, expected, a, s)
-				parts[b] = a
-			}
-		}()
-	}
-	wg.Wait()
+	p.eachBlock(func(b, lo, hi int) {
+		s, _ := p.scratch.Get().(*scratch)
+		if s == nil {
+			s = p.newScratch()
+		}
+		a := p.newAcc(order)
+		p.block(c, lo, hi, order, expected, a, s)
+		parts[b] = a
+		p.scratch.Put(s)
+	})
 	total := parts[0]
 	for _, a := range parts[1:] {
 		total.add(a)
@@ -232,6 +212,31 @@ func (p *problem) evaluate(theta []float64, order int, expected bool) *acc {
 		mirrorLower(total.T, len(p.parCols))
 	}
 	return total
+}
+
+// eachBlock runs f for every block of rows (b its index, rows lo..hi-1) on
+// p.workers goroutines; f writes only into the slots of its block.
+func (p *problem) eachBlock(f func(b, lo, hi int)) {
+	n := p.d.n
+	nb := (n + blockRows - 1) / blockRows
+	workers := min(p.workers, nb)
+	var wg sync.WaitGroup
+	next := make(chan int, nb)
+	for b := 0; b < nb; b++ {
+		next <- b
+	}
+	close(next)
+	for w := 0; w < workers; w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for b := range next {
+				lo := b * blockRows
+				f(b, lo, min(lo+blockRows, n))
+			}
+		}()
+	}
+	wg.Wait()
 }
 
 // scratch is per-worker memory for one block. The block's columns, linear
@@ -274,7 +279,15 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 	rows := hi - lo
 	p.blockColumns(c, lo, rows, s)
 	p.blockLinear(c, lo, rows, s)
-	if !p.blockKernels(c, lo, rows, order, expected, a, s) {
+	var t0 time.Time
+	if p.prof != nil {
+		t0 = time.Now()
+	}
+	ok := p.blockKernels(c, lo, rows, order, expected, a, s)
+	if p.prof != nil {
+		p.prof.addKernels(time.Since(t0))
+	}
+	if !ok {
 		a.bad = true
 		a.ll = math.Inf(-1)
 		return

@@ -245,26 +245,38 @@ func (ly *layout) fillEstimates(r *Result, m Model, st newtonState) {
 func (p *problem) fittedCheck(theta []float64) (float64, int) {
 	c := p.coefs(theta)
 	d, q := p.d, p.q
-	L := make([]float64, q)
-	pr := make([]float64, q+1)
+	nb := (d.n + blockRows - 1) / blockRows
+	mins := make([]float64, nb)
+	negs := make([]int, nb)
+	p.eachBlock(func(b, lo, hi int) {
+		L := make([]float64, q)
+		pr := make([]float64, q+1)
+		minP := math.Inf(1)
+		neg := 0
+		for i := lo; i < hi; i++ {
+			if d.weight(i) == 0 {
+				continue
+			}
+			p.linear(c, i, L)
+			p.ker.probs(L, pr)
+			bad := false
+			for _, v := range pr {
+				if v < 0 {
+					bad = true
+				}
+			}
+			if bad {
+				neg += d.rowsBehind(i)
+			}
+			minP = math.Min(minP, pr[d.y[i]])
+		}
+		mins[b], negs[b] = minP, neg
+	})
 	minP := math.Inf(1)
 	neg := 0
-	for i := 0; i < d.n; i++ {
-		if d.weight(i) == 0 {
-			continue
-		}
-		p.linear(c, i, L)
-		p.ker.probs(L, pr)
-		bad := false
-		for _, v := range pr {
-			if v < 0 {
-				bad = true
-			}
-		}
-		if bad {
-			neg += d.rowsBehind(i)
-		}
-		minP = math.Min(minP, pr[d.y[i]])
+	for b := range mins {
+		minP = math.Min(minP, mins[b])
+		neg += negs[b]
 	}
 	return minP, neg
 }

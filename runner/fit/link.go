@@ -169,6 +169,66 @@ func logitTail(z float64) (float64, float64, float64) {
 	return z - math.Log1p(e), e / (1 + e), 1 / (1 + e)
 }
 
+// logitPoint holds the logistic quantities of one z from one exponential
+// and one logarithm: e = exp(-|z|), l = log1p(e). Its methods return, bit
+// for bit, what Link.lower, Link.upper, logistic and Link.logDensity
+// return for the logit link at z.
+type logitPoint struct{ z, e, l float64 }
+
+func newLogitPoint(z float64) logitPoint {
+	e := math.Exp(-math.Abs(z))
+	return logitPoint{z, e, math.Log1p(e)}
+}
+
+// logF is log F(z).
+func (p logitPoint) logF() float64 {
+	if p.z >= 0 {
+		return -p.l
+	}
+	return p.z - p.l
+}
+
+// logFc is log(1 - F(z)).
+func (p logitPoint) logFc() float64 {
+	if -p.z >= 0 {
+		return -p.l
+	}
+	return -p.z - p.l
+}
+
+// probs returns F(z) and 1 - F(z).
+func (p logitPoint) probs() (float64, float64) {
+	if p.z >= 0 {
+		return 1 / (1 + p.e), p.e / (1 + p.e)
+	}
+	return p.e / (1 + p.e), 1 / (1 + p.e)
+}
+
+// logDensity returns log f(z) and f'(z)/f(z).
+func (p logitPoint) logDensity() (float64, float64) {
+	F, Fc := p.probs()
+	if p.z > 0 {
+		return -p.l - (p.z + p.l), Fc - F
+	}
+	if p.z == 0 {
+		return -p.l - p.l, Fc - F
+	}
+	return -(-p.z + p.l) - p.l, Fc - F
+}
+
+// logitDiff is log(F(b) - F(a)) for b > a under the logit link, from
+// whichever tail keeps the digits: logDiffCDF from the two points' shared
+// exponentials.
+func logitDiff(pa, pb logitPoint) float64 {
+	mid := 0.5 * (pa.z + pb.z)
+	if mid <= 0 || (mid < 1e-15 && Logit.cdf(mid) <= 0.5) { // F(mid) <= 1/2
+		la, lb := pa.logF(), pb.logF()
+		return lb + log1mexp(la-lb)
+	}
+	ua, ub := pa.logFc(), pb.logFc()
+	return ua + log1mexp(ub-ua)
+}
+
 // logistic returns F(z) and 1-F(z) without cancellation.
 func logistic(z float64) (float64, float64) {
 	if z >= 0 {

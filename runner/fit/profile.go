@@ -5,10 +5,11 @@ import (
 	"time"
 )
 
-// profile accumulates the time spent in the weighted cross-products.
+// profile accumulates the time spent in the weighted cross-products and in
+// the row kernels.
 type profile struct {
-	mu    sync.Mutex
-	cross time.Duration
+	mu          sync.Mutex
+	cross, kern time.Duration
 }
 
 func (p *profile) add(d time.Duration) {
@@ -17,11 +18,22 @@ func (p *profile) add(d time.Duration) {
 	p.mu.Unlock()
 }
 
+func (p *profile) addKernels(d time.Duration) {
+	p.mu.Lock()
+	p.kern += d
+	p.mu.Unlock()
+}
+
 // IterationProfile is the cost of one Newton iteration of a model.
 type IterationProfile struct {
 	Iteration     time.Duration // assembly of score and information, the direction, and the evaluation at the step (log-likelihood with derivatives)
 	CrossProducts time.Duration // the weighted cross-products U'WU inside it (with the weights they need)
-	Parameters    int
+	Kernels       time.Duration // the row kernels inside it: one pass, log-probabilities and their first and second derivatives in L
+	// Reference is one weighted cross-product X'WX of the n x K design
+	// alone (the rows read as the engine reads them, column-major blocks,
+	// symCross), the yardstick of a parallel-effects iteration.
+	Reference  time.Duration
+	Parameters int
 }
 
 // ProfileIteration measures one Newton iteration of model m on d at the
@@ -66,5 +78,37 @@ func ProfileIteration(d *Data, m Model, reps, workers int) (IterationProfile, er
 		a = pr.evaluate(addScaled(theta, dir, 1e-3), 2, false)
 	}
 	total := time.Since(start)
-	return IterationProfile{Iteration: total / time.Duration(reps), CrossProducts: pr.prof.cross / time.Duration(reps), Parameters: len(theta)}, nil
+	start = time.Now()
+	for r := 0; r < reps; r++ {
+		referenceCross(pr.d)
+	}
+	ref := time.Since(start)
+	per := func(d time.Duration) time.Duration { return d / time.Duration(reps) }
+	return IterationProfile{Iteration: per(total), CrossProducts: per(pr.prof.cross), Kernels: per(pr.prof.kern), Reference: per(ref), Parameters: len(theta)}, nil
+}
+
+// referenceCross forms sum_i w_i x_i x_i' over the rows of d, block by
+// block on one goroutine, as the engine reads them (the block's columns
+// copied column-major, then symCross), with weights 1/(1+i mod 7) standing
+// for a kernel's.
+func referenceCross(d *design) []float64 {
+	K := d.K
+	rows := min(blockRows, max(d.n, 1))
+	u := make([]float64, rows*K)
+	w := make([]float64, rows)
+	dst := make([]float64, K*K)
+	for lo := 0; lo < d.n; lo += blockRows {
+		hi := min(lo+blockRows, d.n)
+		n := hi - lo
+		for i := 0; i < n; i++ {
+			xi := d.x[(lo+i)*K : (lo+i+1)*K]
+			for j, v := range xi {
+				u[j*n+i] = v
+			}
+			w[i] = 1 / float64(1+(lo+i)%7)
+		}
+		symCross(dst, K, u[:n*K], K, n, w[:n])
+	}
+	mirrorLower(dst, K)
+	return dst
 }

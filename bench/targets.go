@@ -1,0 +1,291 @@
+package main
+
+import (
+	"bufio"
+	"encoding/json"
+	"fmt"
+	"io"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"runtime"
+	"slices"
+	"strconv"
+	"strings"
+	"sync"
+	"syscall"
+	"time"
+
+	"ordplan/runner/fit"
+)
+
+// The limits of the fitting engine's speed targets on this machine.
+const (
+	wholeLimit = 0.8  // seconds: ordplan fit, binary logit, 1e6 x 10, from CSV
+	csvBudget  = 0.25 // seconds of it for reading the CSV file (the ingest target)
+	iterLimit  = 1.5  // a parallel-effects iteration over one X'WX plus one kernel pass
+	gridLimit  = 2.0  // the 13-model grid on every core over its slowest single fit
+	memLimit   = 3.0  // peak memory over the design matrix
+)
+
+// targetRow is one row of the targets table.
+type targetRow struct {
+	what, measured string
+	value, limit   float64
+}
+
+// targets measures the fitting engine against its speed targets at n rows,
+// K = 10 predictors, and writes the table: each timing the best and the
+// median of repeats runs.
+func targets(w io.Writer, n, repeats int) {
+	const K = 10
+	var rows []targetRow
+	add := func(r targetRow) {
+		rows = append(rows, r)
+		fmt.Fprintf(os.Stderr, "bench: %s: %s\n", r.what, r.measured)
+	}
+	xBytes := float64(n * K * 8)
+
+	bin := generate(n, K, 2, 11)
+	binary := fit.Model{Comparison: fit.Cumulative, Link: fit.Logit, Effects: make([]fit.Effect, K)}
+	best, med := timeRepeats(repeats, func() {
+		if _, err := fit.Fit(bin, binary, fit.Options{Workers: runtime.GOMAXPROCS(0)}); err != nil {
+			fmt.Fprintln(os.Stderr, "bench:", err)
+		}
+	})
+	add(targetRow{fmt.Sprintf("binary logit, %s x %d, the fit (data in memory)", count(n), K),
+		fmt.Sprintf("%.3f s (median %.3f)", best, med), best, wholeLimit - csvBudget})
+
+	if best, med, err := wholeProcess(bin, repeats); err != nil {
+		fmt.Fprintln(os.Stderr, "bench: whole process:", err)
+	} else {
+		add(targetRow{fmt.Sprintf("binary logit, %s x %d, whole process from CSV (`ordplan fit`)", count(n), K),
+			fmt.Sprintf("%.3f s (median %.3f)", best, med), best, wholeLimit})
+	}
+
+	five := generate(n, K, 5, 42)
+	for _, c := range []struct {
+		name string
+		d    *fit.Data
+		m    fit.Model
+	}{
+		{"binary logit", bin, binary},
+		{"cumulative/parallel (J = 5)", five, fit.Model{Comparison: fit.Cumulative, Link: fit.Logit, Effects: make([]fit.Effect, K)}},
+		{"stage/parallel (J = 5)", five, fit.Model{Comparison: fit.Stage, Link: fit.Logit, Effects: make([]fit.Effect, K)}},
+		{"adjacent/parallel (J = 5)", five, fit.Model{Comparison: fit.Adjacent, Link: fit.Logit, Effects: make([]fit.Effect, K)}},
+	} {
+		var ratios []float64
+		var last fit.IterationProfile
+		for r := 0; r < repeats; r++ {
+			pr, err := fit.ProfileIteration(c.d, c.m, 1, 1)
+			if err != nil {
+				fmt.Fprintln(os.Stderr, "bench:", err)
+				break
+			}
+			ratios = append(ratios, float64(pr.Iteration)/float64(pr.Reference+pr.Kernels))
+			last = pr
+		}
+		if len(ratios) == 0 {
+			continue
+		}
+		b, m := bestMedian(ratios)
+		add(targetRow{fmt.Sprintf("%s: one iteration / (one X'WX + one kernel pass), one worker", c.name),
+			fmt.Sprintf("%.2f (median %.2f; last run: iteration %.0f ms, X'WX %.0f ms, kernels %.0f ms, cross-products inside %.0f ms)",
+				b, m, ms(last.Iteration), ms(last.Reference), ms(last.Kernels), ms(last.CrossProducts)), b, iterLimit})
+	}
+
+	slowest, slowName, grid := gridTimes(five, K)
+	add(targetRow{fmt.Sprintf("the 13-model grid, n = %s, on %d cores / its slowest single fit", count(n), runtime.GOMAXPROCS(0)),
+		fmt.Sprintf("%.2f (grid %.2f s; slowest %s %.2f s)", grid/slowest, grid, slowName, slowest), grid / slowest, gridLimit})
+
+	for _, c := range []string{"binary", "cumulative/nonparallel"} {
+		res, err := memoryChild(c, n)
+		if err != nil {
+			fmt.Fprintln(os.Stderr, "bench: memory:", err)
+			continue
+		}
+		add(targetRow{fmt.Sprintf("%s, n = %s: peak resident memory of the whole process / X", c, count(n)),
+			fmt.Sprintf("%.2f (%.0f MB; peak heap / X %.2f; X = %.0f MB)", float64(res.RSS)/xBytes, float64(res.RSS)/1e6, float64(res.Heap)/xBytes, xBytes/1e6),
+			float64(res.RSS) / xBytes, memLimit})
+	}
+
+	fmt.Fprintf(w, "| target | measured | limit | ratio to limit |\n|---|---|---|---|\n")
+	for _, r := range rows {
+		fmt.Fprintf(w, "| %s | %s | %s | %.2f |\n", r.what, r.measured, strconv.FormatFloat(r.limit, 'g', -1, 64), r.value/r.limit)
+	}
+}
+
+func ms(d time.Duration) float64 { return float64(d) / 1e6 }
+
+func count(n int) string {
+	switch {
+	case n >= 1e6 && n%1e6 == 0:
+		return fmt.Sprintf("%de6", n/1e6)
+	case n >= 1e3 && n%1e3 == 0:
+		return fmt.Sprintf("%de3", n/1e3)
+	}
+	return strconv.Itoa(n)
+}
+
+// timeRepeats runs f repeats times and returns the best and the median
+// seconds.
+func timeRepeats(repeats int, f func()) (float64, float64) {
+	var ts []float64
+	for r := 0; r < max(repeats, 1); r++ {
+		t0 := time.Now()
+		f()
+		ts = append(ts, time.Since(t0).Seconds())
+	}
+	return bestMedian(ts)
+}
+
+func bestMedian(v []float64) (float64, float64) {
+	s := slices.Clone(v)
+	slices.Sort(s)
+	return s[0], s[len(s)/2]
+}
+
+// wholeProcess builds ordplan, writes d (two categories) as CSV and times
+// `ordplan fit` on it.
+func wholeProcess(d *fit.Data, repeats int) (float64, float64, error) {
+	dir, err := os.MkdirTemp("", "ordplan-bench-")
+	if err != nil {
+		return 0, 0, err
+	}
+	defer os.RemoveAll(dir)
+	exe := filepath.Join(dir, "ordplan")
+	if out, err := exec.Command("go", "build", "-o", exe, "./cmd/ordplan").CombinedOutput(); err != nil {
+		return 0, 0, fmt.Errorf("go build ./cmd/ordplan (run the bench from the module root): %v: %s", err, out)
+	}
+	csv := filepath.Join(dir, "binary.csv")
+	K := len(d.Predictors)
+	if err := writeCSV(csv, d); err != nil {
+		return 0, 0, err
+	}
+	var errRun error
+	best, med := timeRepeats(repeats, func() {
+		cmd := exec.Command(exe, "fit", "--data", csv, "--outcome", "y", "--predictors", strings.Join(d.Predictors[:K], ","))
+		if out, err := cmd.CombinedOutput(); err != nil {
+			errRun = fmt.Errorf("%v: %s", err, out)
+		}
+	})
+	return best, med, errRun
+}
+
+// writeCSV writes the outcome y and the predictors (0/1 as integers, the
+// others with 6 significant digits).
+func writeCSV(path string, d *fit.Data) error {
+	f, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	bw := bufio.NewWriterSize(f, 1<<20)
+	K := len(d.Predictors)
+	bw.WriteString("y," + strings.Join(d.Predictors, ",") + "\n")
+	var buf []byte
+	for i, y := range d.Y {
+		buf = strconv.AppendInt(buf[:0], int64(y), 10)
+		for k := 0; k < K; k++ {
+			buf = append(buf, ',')
+			buf = strconv.AppendFloat(buf, d.X[i*K+k], 'g', 6, 64)
+		}
+		buf = append(buf, '\n')
+		bw.Write(buf)
+	}
+	if err := bw.Flush(); err != nil {
+		f.Close()
+		return err
+	}
+	return f.Close()
+}
+
+// gridCells are the 13 models of the example plan's grid: the three
+// comparisons with parallel, partial (two nonparallel predictors),
+// constrained (two) and nonparallel effects, and the adjacent stereotype.
+func gridCells(K int) []cell {
+	out := cells(K)
+	eff := make([]fit.Effect, K)
+	for k := range eff {
+		eff[k] = fit.Constrained
+	}
+	return append(out, cell{"adjacent/stereotype", fit.Model{Comparison: fit.Adjacent, Link: fit.Logit, Effects: eff}})
+}
+
+// gridTimes fits every model of the grid alone on every core (the slowest
+// of them and its time), then all of them at once, one fit per core as a
+// plan's grid runs (the grid's time).
+func gridTimes(d *fit.Data, K int) (float64, string, float64) {
+	all := gridCells(K)
+	slowest, name := 0.0, ""
+	for _, c := range all {
+		t0 := time.Now()
+		fit.Fit(d, c.m, fit.Options{Workers: runtime.GOMAXPROCS(0)})
+		if s := time.Since(t0).Seconds(); s > slowest {
+			slowest, name = s, c.name
+		}
+	}
+	t0 := time.Now()
+	var wg sync.WaitGroup
+	sem := make(chan struct{}, runtime.GOMAXPROCS(0))
+	for _, c := range all {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			sem <- struct{}{}
+			defer func() { <-sem }()
+			fit.Fit(d, c.m, fit.Options{Workers: 1})
+		}()
+	}
+	wg.Wait()
+	return slowest, name, time.Since(t0).Seconds()
+}
+
+// memoryResult is what a fit in a fresh process used: the peak resident
+// set and the largest heap in use, bytes.
+type memoryResult struct {
+	RSS  uint64 `json:"rss"`
+	Heap uint64 `json:"heap"`
+}
+
+// memoryChild runs one fit of model (binary or cumulative/nonparallel) on
+// n generated rows in a fresh process (this program with -memory-child)
+// and returns what it used, data included.
+func memoryChild(model string, n int) (memoryResult, error) {
+	exe, err := os.Executable()
+	if err != nil {
+		return memoryResult{}, err
+	}
+	out, err := exec.Command(exe, "-memory-child", model, "-memory-rows", strconv.Itoa(n)).Output()
+	if err != nil {
+		return memoryResult{}, err
+	}
+	var r memoryResult
+	err = json.Unmarshal(out, &r)
+	return r, err
+}
+
+// runMemoryChild is the child of memoryChild: it generates the rows, fits
+// and prints the peak resident set and heap as JSON.
+func runMemoryChild(model string, n int) {
+	const K = 10
+	J := 5
+	m := fit.Model{Comparison: fit.Cumulative, Link: fit.Logit, Effects: make([]fit.Effect, K)}
+	if model == "binary" {
+		J = 2
+	} else {
+		for k := range m.Effects {
+			m.Effects[k] = fit.Nonparallel
+		}
+	}
+	d := generate(n, K, J, 11)
+	var ferr error
+	heap := peak(func() { _, ferr = fit.Fit(d, m, fit.Options{Workers: runtime.GOMAXPROCS(0)}) })
+	if ferr != nil {
+		fmt.Fprintln(os.Stderr, "bench:", ferr)
+		os.Exit(1)
+	}
+	var ru syscall.Rusage
+	syscall.Getrusage(syscall.RUSAGE_SELF, &ru)
+	json.NewEncoder(os.Stdout).Encode(memoryResult{RSS: uint64(ru.Maxrss) << 10, Heap: heap})
+	runtime.KeepAlive(d)
+}
