@@ -88,8 +88,7 @@ func fullCross(dst []float64, ldd int, A []float64, ka int, B []float64, kb, n i
 			if two {
 				a1, r1 = colA(a+1, lo, hi), dst[(a+1)*ldd:]
 			}
-			b := 0
-			for ; b+4 <= kb; b += 4 {
+			for b := 0; b+4 <= kb; b += 4 {
 				b0, b1, b2, b3 := colB(b, lo, hi), colB(b+1, lo, hi), colB(b+2, lo, hi), colB(b+3, lo, hi)
 				if two {
 					var s [8]float64
@@ -104,12 +103,18 @@ func fullCross(dst []float64, ldd int, A []float64, ka int, B []float64, kb, n i
 					copy(r0[b:b+4], s[:])
 				}
 			}
-			for ; b < kb; b++ {
-				bb := colB(b, lo, hi)
-				r0[b] = wdot(r0[b], wp, a0, bb)
-				if two {
-					r1[b] = wdot(r1[b], wp, a1, bb)
-				}
+		}
+		// The last kb mod 4 columns of B: four entries of A at a time.
+		for b := kb - kb%4; b < kb; b++ {
+			bb := colB(b, lo, hi)
+			a := 0
+			for ; a+4 <= ka; a += 4 {
+				s := [4]float64{dst[a*ldd+b], dst[(a+1)*ldd+b], dst[(a+2)*ldd+b], dst[(a+3)*ldd+b]}
+				tile41(&s, wp, colA(a, lo, hi), colA(a+1, lo, hi), colA(a+2, lo, hi), colA(a+3, lo, hi), bb)
+				dst[a*ldd+b], dst[(a+1)*ldd+b], dst[(a+2)*ldd+b], dst[(a+3)*ldd+b] = s[0], s[1], s[2], s[3]
+			}
+			for ; a < ka; a++ {
+				dst[a*ldd+b] = wdot(dst[a*ldd+b], wp, colA(a, lo, hi), bb)
 			}
 		}
 	}
@@ -212,6 +217,32 @@ func tile14(s *[4]float64, w, a0, b0, b1, b2, b3 []float64) {
 			s1 += x * (wi * b1[i])
 			s2 += x * (wi * b2[i])
 			s3 += x * (wi * b3[i])
+		}
+	}
+	*s = [4]float64{s0, s1, s2, s3}
+}
+
+// tile41 adds to s the sums over rows i of a_i (w_i b_i) for four columns
+// a and one column b (w nil: 1), row after row.
+func tile41(s *[4]float64, w, a0, a1, a2, a3, b []float64) {
+	n := len(b)
+	a0, a1, a2, a3 = a0[:n], a1[:n], a2[:n], a3[:n]
+	s0, s1, s2, s3 := s[0], s[1], s[2], s[3]
+	if w == nil {
+		for i, y := range b {
+			s0 += a0[i] * y
+			s1 += a1[i] * y
+			s2 += a2[i] * y
+			s3 += a3[i] * y
+		}
+	} else {
+		w = w[:n]
+		for i, y := range b {
+			y *= w[i]
+			s0 += a0[i] * y
+			s1 += a1[i] * y
+			s2 += a2[i] * y
+			s3 += a3[i] * y
 		}
 	}
 	*s = [4]float64{s0, s1, s2, s3}

@@ -410,18 +410,11 @@ func (p *problem) blockKernels(c *coefs, lo, rows, order int, expected bool, a *
 }
 
 // blockScore adds the score pieces: V (q x Kf) += G' Uf and Vp += Xp' (G 1),
-// G the weighted first derivatives of the rows. Each sum runs over the rows
-// in order (a few products per row: the score's rounding, which the
-// reported max |score| shows, stays that of a plain loop).
+// G the weighted first derivatives of the rows.
 func (p *problem) blockScore(rows int, a *acc, s *scratch) {
 	q := p.q
 	kf, kp := len(p.freeCols), len(p.parCols)
-	for m := 0; m < q; m++ {
-		g := s.gs[m*rows : (m+1)*rows]
-		for j := 0; j < kf; j++ {
-			a.V[m*kf+j] = sumProducts(a.V[m*kf+j], g, s.uf[j*rows:(j+1)*rows])
-		}
-	}
+	fullCross(a.V, kf, s.gs, q, s.uf, kf, rows, nil)
 	if kp == 0 {
 		return
 	}
@@ -430,20 +423,7 @@ func (p *problem) blockScore(rows int, a *acc, s *scratch) {
 	for m := 1; m < q; m++ {
 		addTo(sg, s.gs[m*rows:(m+1)*rows])
 	}
-	for j := 0; j < kp; j++ {
-		a.Vp[j] = sumProducts(a.Vp[j], sg, s.xp[j*rows:(j+1)*rows])
-	}
-}
-
-// sumProducts returns s + sum_i g_i u_i, summed in order, skipping g_i = 0.
-func sumProducts(s float64, g, u []float64) float64 {
-	u = u[:len(g)]
-	for i, v := range g {
-		if v != 0 {
-			s += v * u[i]
-		}
-	}
-	return s
+	fullCross(a.Vp, kp, sg, 1, s.xp, kp, rows, nil)
 }
 
 // blockInformation adds the information pieces, lower triangles of the
