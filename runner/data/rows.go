@@ -434,16 +434,31 @@ func (t *MissingTable) byCategory(cols []usedCol, d *Dataset, catMiss map[string
 }
 
 // codeCategories sets y to the index of each code among the distinct codes,
-// sorted numerically, and returns their decimal labels.
+// sorted numerically, and returns their decimal labels; rows whose y is -1
+// (a missing outcome kept for imputation) keep it. The distinct codes are
+// gathered in one pass into a short sorted list (an outcome has few), and
+// sorted from all codes only when they are many.
 func codeCategories(codes []int64, y []int) []string {
 	var distinct []int64
 	for i, c := range codes {
-		if y[i] >= 0 {
-			distinct = append(distinct, c)
+		if y[i] < 0 {
+			continue
+		}
+		if at, found := slices.BinarySearch(distinct, c); !found {
+			if len(distinct) == 256 {
+				distinct = distinct[:0]
+				for i, c := range codes {
+					if y[i] >= 0 {
+						distinct = append(distinct, c)
+					}
+				}
+				slices.Sort(distinct)
+				distinct = slices.Compact(distinct)
+				break
+			}
+			distinct = slices.Insert(distinct, at, c)
 		}
 	}
-	slices.Sort(distinct)
-	distinct = slices.Compact(distinct)
 	for i, c := range codes {
 		if y[i] >= 0 {
 			y[i], _ = slices.BinarySearch(distinct, c)
