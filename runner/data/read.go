@@ -64,7 +64,7 @@ func readBytes(raw []byte, name string, opt Options) (*Dataset, error) {
 	if name == "" {
 		name = "<input>"
 	}
-	r := &reader{file: name, opt: opt, missing: opt.missingSet()}
+	r := &reader{file: name, opt: opt, missing: opt.missingSet(), raw: raw}
 	cols, err := r.opt.plan()
 	if err != nil {
 		return nil, &Error{File: r.file, Msg: err.Error()}
@@ -98,6 +98,7 @@ type reader struct {
 	cr      records
 	cols    []usedCol
 	width   int
+	raw     []byte // the whole input, when read before (readBytes)
 }
 
 func (r *reader) fail(line int, column, format string, args ...any) *Error {
@@ -230,13 +231,26 @@ func trimsLeadingSpace(delim rune) bool {
 	return !unicode.IsSpace(delim)
 }
 
+// whole returns the bytes of the input: those readBytes was given, or all
+// of in.
+func (r *reader) whole(in io.Reader) ([]byte, error) {
+	if r.raw != nil {
+		return r.raw, nil
+	}
+	raw, err := io.ReadAll(in)
+	if err != nil {
+		return nil, &Error{File: r.file, Msg: "cannot read file: " + osReason(err), Err: err}
+	}
+	return raw, nil
+}
+
 // start sets up the CSV reader, skipping a UTF-8 byte order mark. A
 // compressed, UTF-16, binary or CR-only file is refused, named as such.
 func (r *reader) start(in io.Reader) error {
 	if IsParquet(r.file) {
-		raw, err := io.ReadAll(in)
+		raw, err := r.whole(in)
 		if err != nil {
-			return &Error{File: r.file, Msg: "cannot read file: " + osReason(err), Err: err}
+			return err
 		}
 		cr, msg := openParquet(raw)
 		if msg != "" {
@@ -246,9 +260,9 @@ func (r *reader) start(in io.Reader) error {
 		return nil
 	}
 	if IsWorkbook(r.file) {
-		raw, err := io.ReadAll(in)
+		raw, err := r.whole(in)
 		if err != nil {
-			return &Error{File: r.file, Msg: "cannot read file: " + osReason(err), Err: err}
+			return err
 		}
 		sr, msg := openSheet(raw, r.opt.Dialect)
 		if msg != "" {
