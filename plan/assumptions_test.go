@@ -1,0 +1,74 @@
+package plan
+
+import (
+	"bytes"
+	"strings"
+	"testing"
+)
+
+const effectsPlan = `version: 1
+data: {file: d.csv}
+outcomes:
+  - column: y
+    categories: [a, b, c]
+categorical:
+  g: {levels: [r, s, t], coding: sum}
+predictors:
+  - {name: xs, column: x, spline: {knots: [-1, 0, 1]}}
+  - g
+  - z
+  - {interact: [z, g]}
+models: {approaches: [stage], direction: backward, effects: [parallel]}
+tests: {parallel_lines: [lr]}
+rules:
+  - choose: {by: aic}
+assumptions:
+  comparison: stage
+  correlations:
+    - {between: [x, z], r: -0.2}
+  outcomes:
+    y:
+      proportions: [0.3, 0.4, 0.3]
+      effects:
+        xs: {at: [-1, 0, 1], values: [0, 0.5, 0.2]}
+        z&g: {z&g.s: 0.3}
+      nonparallel:
+        g: [{s: 0.1, t: 0.2}, {t: 0.4}]
+`
+
+// Every form of stated effect, the generating comparison (its direction
+// taken from models.direction) and a correlation survive the canonical
+// form: it parses back to the same bytes. Levels are resolved in the
+// declared order, the reference 0.
+func TestAssumptionsCanonicalRoundTrip(t *testing.T) {
+	p, err := Parse([]byte(effectsPlan), "e.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	a := p.Assumptions
+	if a.Comparison != "stage" || a.Direction != "backward" || len(a.Correlations) != 1 {
+		t.Errorf("generator %q %q, correlations %v", a.Comparison, a.Direction, a.Correlations)
+	}
+	terms := a.Outcomes[0].Terms
+	if len(terms) != 3 || terms[2].Term != "g" || !terms[2].Nonparallel || terms[2].Boundaries[1].Levels[2] != 0.4 || terms[2].Boundaries[0].Levels[0] != 0 {
+		t.Errorf("terms %+v", terms)
+	}
+	c := p.Canonical()
+	for _, w := range []string{`"comparison": "stage"`, `"direction": "backward"`, `"at": [`, `"between": [`, `"z&g.s": 0.3`} {
+		if !bytes.Contains(c, []byte(w)) {
+			t.Errorf("canonical form lacks %s:\n%s", w, c)
+		}
+	}
+	q, err := Parse(c, "again.json")
+	if err != nil {
+		t.Fatalf("canonical plan does not parse: %v\n%s", err, c)
+	}
+	if !bytes.Equal(q.Canonical(), c) {
+		t.Errorf("canonical plan changed on reparse:\n%s\nvs\n%s", q.Canonical(), c)
+	}
+	// A nonparallel term needs one effect per boundary.
+	_, err = Parse([]byte(strings.Replace(effectsPlan, "[{s: 0.1, t: 0.2}, {t: 0.4}]", "[{s: 0.1}]", 1)), "e.yaml")
+	if err == nil || !strings.Contains(err.Error(), "assumptions.outcomes.y.nonparallel.g: want 2 effects, one per boundary between the 3 categories, got 1") {
+		t.Errorf("got %v", err)
+	}
+}
