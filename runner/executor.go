@@ -35,7 +35,12 @@ type Executor interface {
 // to job.DataHash; the caller checks). Local runs and remote workers share
 // it, so both give the same results.
 func ExecuteJob(path string, job Job) (*fit.Result, error) {
-	ds, err := data.Load(path, job.DataOptions)
+	return ExecuteJobFiles([]string{path}, job)
+}
+
+// ExecuteJobFiles is ExecuteJob on data held as parts (data.LoadFiles).
+func ExecuteJobFiles(paths []string, job Job) (*fit.Result, error) {
+	ds, err := data.LoadFiles(paths, job.DataOptions)
 	if err != nil {
 		return nil, err
 	}

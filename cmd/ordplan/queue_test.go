@@ -366,3 +366,106 @@ func TestFitPartitionsThroughWorkers(t *testing.T) {
 		}
 	}
 }
+
+// A plan whose data are held as parts runs through the queue: the fits the
+// partitioned path can do are summed over the workers part by part (a
+// workbook and a Parquet part among them), the constrained ones are
+// fitted by the coordinator on the parts read as one data set, with a
+// line saying why; the decisions are those of a local run, the numbers
+// to rounding.
+func TestQueueRunOverParts(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts worker processes")
+	}
+	src, err := os.ReadFile(filepath.Join(refDir, "gsswarm.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(src)), "\n")
+	dir := t.TempDir()
+	var files []string
+	for p := 0; p < 3; p++ {
+		var b strings.Builder
+		b.WriteString(lines[0] + "\n")
+		for i := 1 + p; i < len(lines); i += 3 {
+			b.WriteString(lines[i] + "\n")
+		}
+		raw := []byte(b.String())
+		name := "part" + strconv.Itoa(p) + ".csv"
+		switch p {
+		case 1:
+			name, raw = "part1.parquet", toParquet(t, raw)
+		case 2:
+			name, raw = "part2.xlsx", toWorkbook(t, raw)
+		}
+		os.WriteFile(filepath.Join(dir, name), raw, 0o644)
+		files = append(files, name)
+	}
+	plan := filepath.Join(dir, "plan.yaml")
+	os.WriteFile(plan, []byte(`version: 1
+data:
+  parts: [`+strings.Join(files, ", ")+`]
+  sheet: survey
+  header_row: 3
+outcomes:
+  - column: warm
+    categories: ["1", "2", "3", "4"]
+predictors: [yr89, male, white, age, ed, prst]
+models:
+  approaches: [cumulative]
+  effects: [parallel, partial, constrained]
+  links: [logit]
+  partial: {free: [yr89, male]}
+tests: {parallel_lines: [lr]}
+rules:
+  - reject_unconverged: true
+  - choose: {by: bic}
+`), 0o644)
+	local, remote := filepath.Join(dir, "local"), filepath.Join(dir, "queue")
+	if out, errs, code := runCLI("run", plan, "--out", local, "--quiet"); code != 0 {
+		t.Fatalf("local run: exit %d: %s %s", code, out, errs)
+	}
+	url := localserver.ForTest(t)
+	startWorkerProc(t, url, "w1")
+	startWorkerProc(t, url, "w2")
+	r := waitRun(t, runAsync("run", plan, "--out", remote, "--queue", url), 120*time.Second)
+	if !strings.Contains(r[1], "cumulative/constrained/logit fitted here, not over the parts: constrained and stereotype models are not summed over parts") ||
+		!regexp.MustCompile(`: [1-9][0-9]* of [0-9]+ fits summed over 3 parts by the workers`).MatchString(r[1]) {
+		t.Errorf("the coordinator's log does not say which fits went over the parts:\n%s", r[1])
+	}
+	type fitRec struct {
+		ID        string             `json:"id"`
+		LogLik    float64            `json:"loglik"`
+		Estimates map[string]float64 `json:"estimates"`
+	}
+	var dec [2]struct {
+		Outcomes []struct {
+			Chosen *string  `json:"chosen"`
+			Fits   []fitRec `json:"fits"`
+		} `json:"outcomes"`
+	}
+	for i, d := range []string{local, remote} {
+		b, err := os.ReadFile(filepath.Join(d, "decisions.json"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := json.Unmarshal(b, &dec[i]); err != nil {
+			t.Fatal(err)
+		}
+	}
+	a, b := dec[0].Outcomes[0], dec[1].Outcomes[0]
+	if a.Chosen == nil || b.Chosen == nil || *a.Chosen != *b.Chosen || len(a.Fits) != len(b.Fits) {
+		t.Fatalf("local and queue runs chose differently: %v %v", a.Chosen, b.Chosen)
+	}
+	for k, f := range a.Fits {
+		g := b.Fits[k]
+		if f.ID != g.ID || math.Abs(f.LogLik-g.LogLik) > 1e-8 || len(f.Estimates) != len(g.Estimates) {
+			t.Fatalf("%s: loglik %v here, %v over the parts", f.ID, f.LogLik, g.LogLik)
+		}
+		for n, v := range f.Estimates {
+			if w, ok := g.Estimates[n]; !ok || math.Abs(v-w) > 1e-7 {
+				t.Errorf("%s estimate %s: %v here, %v over the parts", f.ID, n, v, w)
+			}
+		}
+	}
+}

@@ -107,11 +107,12 @@ func runPlan(p *plan.Plan, opt runner.Options, cfg *queue.Config, deadline time.
 	}
 	defer c.Close()
 	c.JobDeadline = deadline
-	if p.Data.Parts != nil {
-		return nil, fmt.Errorf("%s: data.parts: ordplan run --queue does not send data held as parts to workers yet; run the plan without --queue, or give the data as one file (data.file)", p.Path)
-	}
 	co := queue.NewCoordinator(ctx, c, p.Hash, log)
-	if _, err := co.AddData(p.Data.Path); err != nil {
+	if p.Data.Parts != nil {
+		if _, err := co.AddParts(p.Data.PartPaths); err != nil {
+			return nil, fmt.Errorf("%s: data.parts: %v", p.Path, err)
+		}
+	} else if _, err := co.AddData(p.Data.Path); err != nil {
 		return nil, fmt.Errorf("%s: data.file: %v", p.Path, err)
 	}
 	opt.Executor = co

@@ -22,7 +22,8 @@ type Coordinator struct {
 	c        *Client
 	planHash string
 	log      io.Writer
-	files    map[string]string // data hash -> local path
+	files    map[string]string   // data hash -> local path
+	parts    map[string][]string // hash of data held as parts -> the parts' paths
 	mu       sync.Mutex
 	err      error
 	stats    []BatchStats
@@ -35,7 +36,7 @@ func NewCoordinator(ctx context.Context, c *Client, planHash string, log io.Writ
 	if c.Log == nil {
 		c.Log = log
 	}
-	return &Coordinator{ctx: ctx, c: c, planHash: planHash, log: log, files: map[string]string{}}
+	return &Coordinator{ctx: ctx, c: c, planHash: planHash, log: log, files: map[string]string{}, parts: map[string][]string{}}
 }
 
 // AddData registers a local data file so that jobs on it can upload it to
@@ -116,6 +117,9 @@ func (co *Coordinator) execute(jobs []runner.Job) ([]*Reply, error) {
 	}
 	if len(jobs) == 0 {
 		return nil, nil
+	}
+	if paths, ok := co.parts[jobs[0].DataHash]; ok {
+		return co.executeParts(jobs, paths)
 	}
 	id, err := RunID(co.planHash, jobs)
 	if err != nil {

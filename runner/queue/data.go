@@ -103,7 +103,7 @@ func (dc *dataCache) path(ctx context.Context, store jetstream.ObjectStore, hash
 	}
 	dc.mu.Lock()
 	defer dc.mu.Unlock()
-	p := filepath.Join(dc.dir, hash)
+	p := filepath.Join(dc.dir, hash+formatExt(name))
 	if st, ok := stampOf(p); ok && dc.verified[hash] == st {
 		return p, nil
 	}
@@ -152,4 +152,17 @@ func (dc *dataCache) remember(hash, p string) {
 	if st, ok := stampOf(p); ok {
 		dc.verified[hash] = st
 	}
+}
+
+// formatExt is the extension that keeps a cached data file's format (the
+// reader knows a workbook or a Parquet file by its name): ".xlsx",
+// ".parquet", or "" for CSV text.
+func formatExt(name string) string {
+	switch {
+	case data.IsWorkbook(name):
+		return ".xlsx"
+	case data.IsParquet(name):
+		return ".parquet"
+	}
+	return ""
 }

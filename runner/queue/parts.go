@@ -1,0 +1,116 @@
+package queue
+
+import (
+	"encoding/json"
+	"fmt"
+	"time"
+
+	"ordplan/runner"
+	"ordplan/runner/data"
+	"ordplan/runner/fit"
+)
+
+// AddParts registers data held as parts (a plan's data.parts): the jobs
+// of a run on them are fitted over the parts, each Newton evaluation
+// summed over the workers (FitPartitioned), where the partitioned path can
+// fit them; the others are fitted here, on the parts read as one data
+// set, and the log says why. It returns the data's hash as the run
+// records it (runner.PartsHash).
+func (co *Coordinator) AddParts(paths []string) (string, error) {
+	var hashes []string
+	for _, p := range paths {
+		h, err := HashFile(p)
+		if err != nil {
+			return "", fmt.Errorf("data part: %v", err)
+		}
+		hashes = append(hashes, h)
+	}
+	h := runner.PartsHash(hashes)
+	co.parts[h] = paths
+	return h, nil
+}
+
+// notPartitioned says why the partitioned path cannot fit a job ("" when
+// it can): it sums plain columns over the parts, under model-based
+// observed-information errors, without constrained (or stereotype) terms.
+func notPartitioned(j runner.Job) string {
+	switch {
+	case j.Design != nil:
+		return "its terms (categorical columns, transformations, interactions) take constants from all rows"
+	case len(j.Spec.Groups) > 0:
+		return "constrained and stereotype models are not summed over parts"
+	case j.FitOptions.Covariance != fit.Observed:
+		return "partitioned fits give observed-information errors only"
+	}
+	return ""
+}
+
+// executeParts fits the jobs of a run on data held as parts, in job order.
+func (co *Coordinator) executeParts(jobs []runner.Job, paths []string) ([]*Reply, error) {
+	start := time.Now()
+	outcome := jobs[0].Outcome
+	type described struct {
+		whole fit.Whole
+		refs  []PartitionRef
+		dopt  data.Options
+	}
+	wholes := map[string]*described{} // by data options
+	replies := make([]*Reply, len(jobs))
+	over := 0
+	for i, j := range jobs {
+		r := &Reply{Index: i, ID: j.ID, Worker: "(coordinator)"}
+		replies[i] = r
+		if why := notPartitioned(j); why != "" {
+			if co.log != nil {
+				fmt.Fprintf(co.log, "queue: %s: %s fitted here, not over the parts: %s\n", outcome, j.ID, why)
+			}
+			res, err := runner.ExecuteJobFiles(paths, j)
+			r.Result = res
+			if err != nil {
+				r.Result, r.Err = nil, err.Error()
+			}
+			continue
+		}
+		key, err := json.Marshal(j.DataOptions)
+		if err != nil {
+			return nil, err
+		}
+		w, ok := wholes[string(key)]
+		if !ok {
+			dopt := j.DataOptions
+			if len(dopt.Categories) == 0 {
+				// Every part must code the outcome as the whole data do.
+				ds, err := data.LoadFiles(paths, dopt)
+				if err != nil {
+					return nil, fmt.Errorf("queue: %s: %v", outcome, err)
+				}
+				dopt.Categories = ds.Categories
+			}
+			whole, refs, _, err := PartitionFiles(paths, dopt)
+			if err != nil {
+				return nil, fmt.Errorf("queue: %s: %v", outcome, err)
+			}
+			w = &described{whole: whole, refs: refs, dopt: dopt}
+			wholes[string(key)] = w
+		}
+		m, err := j.Spec.Model()
+		if err != nil {
+			r.Err = err.Error()
+			continue
+		}
+		res, err := FitPartitioned(co.ctx, co.c, w.refs, w.whole, m, PartitionOptions{Data: w.dopt, Fit: j.FitOptions})
+		if err != nil {
+			if co.ctx.Err() != nil {
+				return nil, fmt.Errorf("queue: %s: %v", outcome, err)
+			}
+			r.Err = err.Error()
+			continue
+		}
+		r.Result = res
+		over++
+	}
+	if co.log != nil {
+		fmt.Fprintf(co.log, "queue: %s: %d of %d fits summed over %d parts by the workers, in %.1fs\n", outcome, over, len(jobs), len(paths), time.Since(start).Seconds())
+	}
+	return replies, nil
+}
