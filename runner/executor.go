@@ -1,8 +1,6 @@
 package runner
 
 import (
-	"fmt"
-
 	"ordplan/runner/data"
 	"ordplan/runner/design"
 	"ordplan/runner/fit"
@@ -55,48 +53,4 @@ func ExecuteJobFiles(paths []string, job Job) (*fit.Result, error) {
 		}
 	}
 	return fit.Fit(d, m, job.FitOptions)
-}
-
-// remoteJobs dispatches the outcome's fits to the executor and stores the
-// results in their entries.
-func remoteJobs(ex Executor, entries []*FitEntry, p *ruleContext) error {
-	var jobs []Job
-	var idx []int
-	for i, e := range entries {
-		if e.Err != "" {
-			continue
-		}
-		jobs = append(jobs, Job{Outcome: p.outcome, Index: i, ID: e.ID, Spec: e.Spec, DataFile: p.dataFile,
-			DataHash: p.dataHash, DataOptions: p.dataOptions, Design: p.design, FitOptions: p.fitOptions})
-		idx = append(idx, i)
-	}
-	results, errs := ex.Execute(jobs)
-	if len(results) != len(jobs) || len(errs) != len(jobs) {
-		return fmt.Errorf("the executor returned %d results for %d jobs", len(results), len(jobs))
-	}
-	for k, i := range idx {
-		e := entries[i]
-		if errs[k] != nil {
-			e.Err = errs[k].Error()
-			continue
-		}
-		e.Result = results[k]
-		if p.sandwich != nil && e.Result.OK() {
-			if err := p.sandwich(e.Result); err != nil {
-				e.Err = err.Error()
-			}
-		}
-	}
-	return nil
-}
-
-// ruleContext carries what a remote dispatch needs from the run.
-type ruleContext struct {
-	outcome     string
-	dataFile    string
-	dataHash    string
-	dataOptions data.Options
-	fitOptions  fit.Options
-	sandwich    func(*fit.Result) error
-	design      *design.Spec
 }

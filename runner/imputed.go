@@ -189,7 +189,10 @@ func poolJobs(a *Analysis, sets []*data.Dataset, jobs []*FitEntry, run *ImputedR
 			c := *e
 			cp[i] = &c
 		}
-		runJobs(cp, d, a.Fit, opt, fmt.Sprintf("%s, imputed set %d/%d", outcome, k+1, run.M), a.Errors.Sandwich(sets[k], d))
+		// Imputed sets are fitted here: a job's design would be rebuilt
+		// on its own set, not frozen on set 1.
+		fitGrid(cp, gridTarget{label: fmt.Sprintf("%s, imputed set %d/%d", outcome, k+1, run.M), data: d,
+			fit: a.Fit, sandwich: a.Errors.Sandwich(sets[k], d)}, opt)
 		perSet[k] = cp
 	}
 	for i, e := range jobs {

@@ -112,17 +112,14 @@ func runOutcome(p *plan.Plan, an *Analysis, r Reading, oc plan.Outcome, opt Opti
 	// 2. The grid of candidate fits and the auxiliary fits the tests need.
 	jobs, notes := gridJobs(an, or.Terms, or.FreeSets, backward)
 	or.Notes = append(or.Notes, notes...)
-	if opt.Executor != nil {
-		ctx := &ruleContext{outcome: oc.Column, dataFile: an.DataFile, dataHash: dataHash, dataOptions: r.Options, fitOptions: fopt, sandwich: sandwich}
-		if !dz.Trivial() {
-			spec := r.Design
-			ctx.design = &spec
-		}
-		if err := remoteJobs(opt.Executor, jobs, ctx); err != nil {
-			return nil, err
-		}
-	} else {
-		runJobs(jobs, or.FitData, fopt, opt, oc.Column, sandwich)
+	target := gridTarget{label: oc.Column, data: or.FitData, fit: fopt, sandwich: sandwich,
+		remote: &remoteData{outcome: oc.Column, dataFile: an.DataFile, dataHash: dataHash, dataOptions: r.Options}}
+	if !dz.Trivial() {
+		spec := r.Design
+		target.remote.design = &spec
+	}
+	if err := fitGrid(jobs, target, opt); err != nil {
+		return nil, err
 	}
 	or.Fits = jobs
 
@@ -283,48 +280,6 @@ func gridJobs(an *Analysis, terms []fit.Term, sets []FreeSet, backward bool) ([]
 // stage direction in the approach.
 func cellID(a fit.Comparison, backward bool, effects string, l fit.Link) string {
 	return fit.ModelID(fit.Model{Comparison: a, Backward: backward}.ComparisonName(), effects, l)
-}
-
-// runJobs fits every entry, several at once; results land in their entry,
-// so the order of completion does not matter.
-func runJobs(jobs []*FitEntry, d *fit.Data, fopt fit.Options, opt Options, outcome string, sandwich func(*fit.Result) error) {
-	var wg sync.WaitGroup
-	sem := make(chan struct{}, opt.Workers)
-	var mu sync.Mutex
-	done, total := 0, 0
-	for _, e := range jobs {
-		if e.Err == "" {
-			total++
-		}
-	}
-	for _, e := range jobs {
-		if e.Err != "" {
-			continue
-		}
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			sem <- struct{}{}
-			defer func() { <-sem }()
-			m, err := e.Spec.Model()
-			if err == nil {
-				e.Result, err = fit.Fit(d, m, fopt)
-			}
-			if err == nil && sandwich != nil && e.Result.OK() {
-				err = sandwich(e.Result)
-			}
-			if err != nil {
-				e.Err = err.Error()
-			}
-			if opt.Progress != nil {
-				mu.Lock()
-				done++
-				opt.Progress.Fitted(outcome, e.ID, done, total)
-				mu.Unlock()
-			}
-		}()
-	}
-	wg.Wait()
 }
 
 // Find returns the fit with the given id.

@@ -1,0 +1,118 @@
+package runner
+
+import (
+	"fmt"
+	"sync"
+
+	"ordplan/runner/data"
+	"ordplan/runner/design"
+	"ordplan/runner/fit"
+)
+
+// gridTarget says where a grid's fits are made: the data here, the fit
+// options and the sandwich step of the covariance policy, and how an
+// Executor redoes the fits elsewhere (remote nil: here only).
+type gridTarget struct {
+	label    string // the outcome (and imputed set), for progress
+	data     *fit.Data
+	fit      fit.Options
+	sandwich func(*fit.Result) error
+	remote   *remoteData
+}
+
+// remoteData is what a job needs to redo a fit elsewhere: the data file by
+// content hash, how to read it and the design.
+type remoteData struct {
+	outcome     string
+	dataFile    string
+	dataHash    string
+	dataOptions data.Options
+	design      *design.Spec
+}
+
+// fitGrid is the one path by which the fits of a grid are made: by the
+// run's Executor when there is one and the target can be redone
+// elsewhere, else here, several at once. Either way a result lands in its
+// entry (so the order of completion does not matter), a usable fit gets
+// the sandwich step, and an error is kept in the entry.
+func fitGrid(entries []*FitEntry, t gridTarget, opt Options) error {
+	if opt.Executor != nil && t.remote != nil {
+		return remoteJobs(opt.Executor, entries, t)
+	}
+	localJobs(entries, t, opt)
+	return nil
+}
+
+// settle stores a fit's result and error in its entry, after the sandwich
+// step of a usable fit.
+func (e *FitEntry) settle(res *fit.Result, err error, sandwich func(*fit.Result) error) {
+	e.Result = res
+	if err == nil && sandwich != nil && res.OK() {
+		err = sandwich(res)
+	}
+	if err != nil {
+		e.Err = err.Error()
+	}
+}
+
+// localJobs fits every entry here, opt.Workers at once; progress hears of
+// each finished fit.
+func localJobs(entries []*FitEntry, t gridTarget, opt Options) {
+	var wg sync.WaitGroup
+	sem := make(chan struct{}, opt.Workers)
+	var mu sync.Mutex
+	done, total := 0, 0
+	for _, e := range entries {
+		if e.Err == "" {
+			total++
+		}
+	}
+	for _, e := range entries {
+		if e.Err != "" {
+			continue
+		}
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			sem <- struct{}{}
+			defer func() { <-sem }()
+			m, err := e.Spec.Model()
+			var res *fit.Result
+			if err == nil {
+				res, err = fit.Fit(t.data, m, t.fit)
+			}
+			e.settle(res, err, t.sandwich)
+			if opt.Progress != nil {
+				mu.Lock()
+				done++
+				opt.Progress.Fitted(t.label, e.ID, done, total)
+				mu.Unlock()
+			}
+		}()
+	}
+	wg.Wait()
+}
+
+// remoteJobs dispatches the fits to the executor as jobs and stores the
+// results in their entries.
+func remoteJobs(ex Executor, entries []*FitEntry, t gridTarget) error {
+	rd := t.remote
+	var jobs []Job
+	var idx []int
+	for i, e := range entries {
+		if e.Err != "" {
+			continue
+		}
+		jobs = append(jobs, Job{Outcome: rd.outcome, Index: i, ID: e.ID, Spec: e.Spec, DataFile: rd.dataFile,
+			DataHash: rd.dataHash, DataOptions: rd.dataOptions, Design: rd.design, FitOptions: t.fit})
+		idx = append(idx, i)
+	}
+	results, errs := ex.Execute(jobs)
+	if len(results) != len(jobs) || len(errs) != len(jobs) {
+		return fmt.Errorf("the executor returned %d results for %d jobs", len(results), len(jobs))
+	}
+	for k, i := range idx {
+		entries[i].settle(results[k], errs[k], t.sandwich)
+	}
+	return nil
+}
