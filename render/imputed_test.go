@@ -109,6 +109,8 @@ func TestImputedReport(t *testing.T) {
 		"| cumulative/parallel/logit (pooled, D3) |",
 		"| Brant (all predictors) (pooled, D1) |",
 		"| Score (all predictors) (pooled, D2) |",
+		"On imputed data the curves and the table below are at the pooled estimates",
+		"every model was fitted on each complete imputed set",
 	} {
 		if !strings.Contains(md, want) {
 			t.Errorf("report.md lacks %q", want)

@@ -34,7 +34,7 @@ func build(r *runner.Result, dec *runner.Decisions, changes []string) *doc {
 	for _, or := range r.Outcomes {
 		writeOutcome(d, r, or)
 	}
-	writeLimits(d)
+	writeLimits(d, r)
 	writeMethods(d, r)
 	writeReproducibility(d, r)
 	writeFilesSection(d, r)
@@ -128,7 +128,13 @@ func stageDirection(r *runner.Result) string {
 	return ""
 }
 
-func writeLimits(d *doc) {
+func writeLimits(d *doc, r *runner.Result) {
+	rows := "Information criteria and tests compare models on the same rows; rows with a missing value were dropped before any model was fitted."
+	for _, or := range r.Outcomes {
+		if or.Imputed != nil {
+			rows = "Information criteria and tests compare models on the same rows: every model was fitted on each complete imputed set. Pooled standard errors and tests include the uncertainty due to the missing values only as far as the imputation model is right."
+		}
+	}
 	d.h(2, "Assumptions and limits")
 	d.list([]string{
 		"The models describe how the outcome is associated with the predictors in these data. They do not show that a predictor causes a change in the outcome; neither do the predicted probabilities or the marginal effects, which are summaries of the same fitted association.",
@@ -136,7 +142,7 @@ func writeLimits(d *doc) {
 		"Tests of the parallel-lines assumption reject easily in large samples: a small p-value can reflect a difference between boundaries too small to matter in practice. Look at the effects across boundaries before giving up a simpler model.",
 		"Cumulative partial and nonparallel models can predict negative category probabilities for some covariate values (their cumulative probabilities cross). The number of rows of the data where this happens is shown for every model, and predictions on the grid of the focus predictor are checked too; predictions outside the observed covariate range are more exposed.",
 		"Constrained (common-factor) models can have several local maxima; ordplan fits them from several starting points and keeps the best.",
-		"Information criteria and tests compare models on the same rows; rows with a missing value were dropped before any model was fitted.",
+		rows,
 		"Standard errors of predicted probabilities and marginal effects use the delta method: they are first-order approximations that treat the chosen model as fixed, not as the result of the selection made by the rules.",
 	})
 }

@@ -22,6 +22,9 @@ const (
 // chosen model over the focus predictor, as a table and a chart.
 func writePredictions(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	d.h(3, "Predicted probabilities")
+	if or.Imputed != nil {
+		d.p("On imputed data the curves and the table below are at the pooled estimates, with delta-method errors from the total (within + between) covariance; to first order this equals pooling the predictions of each set. The predictions for new rows are pooled set by set.")
+	}
 	by := r.Plan.Report.PanelsBy
 	if by == "" || or.Design == nil || or.Design.Source(by) < 0 {
 		writePredictionPanel(d, r, or, nil, "")
