@@ -307,17 +307,32 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 }
 
 // blockColumns fills s.uf with the per-equation columns (Kf x rows) and
-// s.xp with the parallel columns (Kp x rows) of the block.
+// s.xp with the parallel columns (Kp x rows) of the block, column by column.
 func (p *problem) blockColumns(c *coefs, lo, rows int, s *scratch) {
 	d := p.d
-	for i := 0; i < rows; i++ {
-		xi := d.x[(lo+i)*d.K : (lo+i+1)*d.K]
-		for j, col := range p.freeCols {
-			s.uf[j*rows+i] = col.value(xi, p.ly.groups, c.gam)
+	x := d.x[lo*d.K : (lo+rows)*d.K]
+	column := func(dst []float64, k int) {
+		for i := range dst {
+			dst[i] = x[i*d.K+k]
 		}
-		for j, k := range p.parCols {
-			s.xp[j*rows+i] = xi[k]
+	}
+	for j, col := range p.freeCols {
+		dst := s.uf[j*rows : (j+1)*rows]
+		switch col.kind {
+		case constantColumn:
+			for i := range dst {
+				dst[i] = 1
+			}
+		case predictorColumn:
+			column(dst, col.index)
+		default:
+			for i := range dst {
+				dst[i] = col.value(x[i*d.K:(i+1)*d.K], p.ly.groups, c.gam)
+			}
 		}
+	}
+	for j, k := range p.parCols {
+		column(s.xp[j*rows:(j+1)*rows], k)
 	}
 }
 
