@@ -28,6 +28,7 @@ func main() {
 	childDelim := flag.String("ingest-delim", "", "(internal) the delimiter of -ingest-child")
 	childComma := flag.Bool("ingest-decimal-comma", false, "(internal) -ingest-child has a decimal comma")
 	speedRows := flag.Int("targets-rows", 1_000_000, "rows of the data of -only targets")
+	speedGrid := flag.Int("targets-grid-rows", 1_000_000, "rows of the data of the grid in -only targets")
 	speedRepeats := flag.Int("targets-repeats", 3, "runs of each timing of -only targets (best and median reported)")
 	memChild := flag.String("memory-child", "", "(internal) fit this model in this process and print its peak memory")
 	memRows := flag.Int("memory-rows", 1_000_000, "(internal) rows of -memory-child")
@@ -59,7 +60,7 @@ func main() {
 		return
 	}
 	if *only == "targets" {
-		targets(w, *speedRows, *speedRepeats)
+		targets(w, *speedRows, *speedGrid, *speedRepeats)
 		return
 	}
 	run(w, cfg)

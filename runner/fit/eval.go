@@ -279,13 +279,13 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 	rows := hi - lo
 	p.blockColumns(c, lo, rows, s)
 	p.blockLinear(c, lo, rows, s)
-	var t0 time.Time
+	var t0 time.Duration
 	if p.prof != nil {
-		t0 = time.Now()
+		t0 = cpuClock()
 	}
 	ok := p.blockKernels(c, lo, rows, order, expected, a, s)
 	if p.prof != nil {
-		p.prof.addKernels(time.Since(t0))
+		p.prof.addKernels(cpuClock() - t0)
 	}
 	if !ok {
 		a.bad = true
@@ -300,8 +300,8 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 		return
 	}
 	if p.prof != nil {
-		t0 := time.Now()
-		defer func() { p.prof.add(time.Since(t0)) }()
+		t0 := cpuClock()
+		defer func() { p.prof.add(cpuClock() - t0) }()
 	}
 	p.blockInformation(rows, a, s)
 }
