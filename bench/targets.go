@@ -12,7 +12,6 @@ import (
 	"slices"
 	"strconv"
 	"strings"
-	"syscall"
 	"time"
 
 	"ordplan/runner/fit"
@@ -151,13 +150,6 @@ func timeRepeats(repeats int, f func()) (float64, float64, float64) {
 	b, m := bestMedian(ts)
 	c, _ := bestMedian(cs)
 	return b, m, c
-}
-
-// cpuSeconds is the CPU time this process has used.
-func cpuSeconds() float64 {
-	var ru syscall.Rusage
-	syscall.Getrusage(syscall.RUSAGE_SELF, &ru)
-	return float64(ru.Utime.Nano()+ru.Stime.Nano()) / 1e9
 }
 
 // loadAverage is the machine's one-minute load average ("" when unknown).
@@ -303,8 +295,6 @@ func runMemoryChild(model string, n int) {
 		fmt.Fprintln(os.Stderr, "bench:", ferr)
 		os.Exit(1)
 	}
-	var ru syscall.Rusage
-	syscall.Getrusage(syscall.RUSAGE_SELF, &ru)
-	json.NewEncoder(os.Stdout).Encode(memoryResult{RSS: uint64(ru.Maxrss) << 10, Heap: heap})
+	json.NewEncoder(os.Stdout).Encode(memoryResult{RSS: vmHWM(), Heap: heap})
 	runtime.KeepAlive(d)
 }
