@@ -324,17 +324,11 @@ func TestFitPartitionsThroughWorkers(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	lines := strings.Split(strings.TrimSpace(string(src)), "\n")
 	dir := t.TempDir()
 	var parts []string
-	for p := 0; p < 3; p++ {
-		var b strings.Builder
-		b.WriteString(lines[0] + "\n")
-		for i := 1 + p; i < len(lines); i += 3 {
-			b.WriteString(lines[i] + "\n")
-		}
+	for p, raw := range splitInTurn(src, 3) {
 		path := filepath.Join(dir, "part"+strconv.Itoa(p)+".csv")
-		os.WriteFile(path, []byte(b.String()), 0o644)
+		os.WriteFile(path, raw, 0o644)
 		parts = append(parts, path)
 	}
 	args := []string{"fit", "--outcome", "warm", "--categories", "1,2,3,4", "--predictors", "yr89,male,white,age,ed,prst", "--nonparallel", "yr89,male", "--json"}
@@ -381,16 +375,9 @@ func TestQueueRunOverParts(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	lines := strings.Split(strings.TrimSpace(string(src)), "\n")
 	dir := t.TempDir()
 	var files []string
-	for p := 0; p < 3; p++ {
-		var b strings.Builder
-		b.WriteString(lines[0] + "\n")
-		for i := 1 + p; i < len(lines); i += 3 {
-			b.WriteString(lines[i] + "\n")
-		}
-		raw := []byte(b.String())
+	for p, raw := range splitInTurn(src, 3) {
 		name := "part" + strconv.Itoa(p) + ".csv"
 		switch p {
 		case 1:
@@ -468,4 +455,20 @@ rules:
 			}
 		}
 	}
+}
+
+// splitInTurn deals the rows of CSV text to k parts in turn, each with the
+// header (so that every part has every outcome category).
+func splitInTurn(src []byte, k int) [][]byte {
+	lines := strings.Split(strings.TrimSpace(string(src)), "\n")
+	out := make([][]byte, k)
+	for p := range out {
+		var b strings.Builder
+		b.WriteString(lines[0] + "\n")
+		for i := 1 + p; i < len(lines); i += k {
+			b.WriteString(lines[i] + "\n")
+		}
+		out[p] = []byte(b.String())
+	}
+	return out
 }
