@@ -80,7 +80,10 @@ func Fits(m Method, kind Kind, levels int) (bool, string) {
 			return false, fmt.Sprintf("%s imputes numeric columns; this column is %s (use %s)", m, kind, DefaultMethod(kind, levels))
 		}
 	case Logistic:
-		if kind == Numeric || levels != 2 {
+		if kind == Numeric {
+			return false, "logistic imputes a column with two levels; this column is numeric (declare it under categorical with its two levels to impute it by logistic regression, or use mean_matching)"
+		}
+		if levels != 2 {
 			return false, fmt.Sprintf("logistic imputes a column with two levels; this column is %s", describe(kind, levels))
 		}
 	case Multinomial:
