@@ -34,7 +34,8 @@ type batch struct {
 	id      string
 	tasks   []*Task
 	replies []*Reply
-	bad     []int // discarded replies per task
+	revs    []uint64 // the revision each reply was taken from
+	bad     []int    // discarded replies per task
 	done    int
 	st      BatchStats
 }
@@ -48,11 +49,19 @@ type batch struct {
 // against its task: an entry that fails is logged, deleted and its task
 // published again; after MaxBadReplies such entries for one task the batch
 // fails. The first valid reply of each task wins; later ones, and keys
-// that name no task, are ignored. When no reply arrives for JobDeadline
+// that name no task, are ignored. "First" is revision order, not arrival
+// order: the bucket keeps ResultHistory revisions of a key and the watch
+// delivers all of them in order, stored ones before live ones, so a reply
+// overwritten before the coordinator read it (the server feeds the watch
+// asynchronously; a restarted coordinator starts watching late) still
+// wins over the overwrite, and the rule does not depend on timing. A
+// discarded entry is purged with its earlier revisions, so a restarted
+// coordinator does not count it again. When no reply arrives for JobDeadline
 // the missing tasks are published again; when none arrives for another
 // JobDeadline the batch fails.
 func (c *Client) runBatch(ctx context.Context, id string, tasks []*Task, h batchHooks) ([]*Reply, BatchStats, error) {
-	b := &batch{c: c, ctx: ctx, id: id, tasks: tasks, replies: make([]*Reply, len(tasks)), bad: make([]int, len(tasks))}
+	b := &batch{c: c, ctx: ctx, id: id, tasks: tasks, replies: make([]*Reply, len(tasks)),
+		revs: make([]uint64, len(tasks)), bad: make([]int, len(tasks))}
 	b.st.Jobs = len(tasks)
 	if len(tasks) == 0 {
 		return b.replies, b.st, nil
@@ -62,7 +71,7 @@ func (c *Client) runBatch(ctx context.Context, id string, tasks []*Task, h batch
 			return nil, b.st, fmt.Errorf("task %d of batch %s is labelled %s/%d", i, id, t.Batch, t.Index)
 		}
 	}
-	w, err := c.results.Watch(ctx, id+".*", jetstream.IgnoreDeletes())
+	w, err := c.results.Watch(ctx, id+".*", jetstream.IncludeHistory(), jetstream.IgnoreDeletes())
 	if err != nil {
 		return nil, b.st, fmt.Errorf("results bucket: %v", err)
 	}
@@ -165,7 +174,12 @@ func (b *batch) take(e jetstream.KeyValueEntry, republish bool) (bool, error) {
 		return false, nil
 	}
 	i, ok := replyIndex(e.Key(), b.id, len(b.tasks))
-	if !ok || b.replies[i] != nil {
+	if !ok {
+		return false, nil
+	}
+	if b.replies[i] != nil {
+		b.c.logf("queue: job %s: ignored a later reply stored under %s (revision %d): the first valid reply (revision %d) wins",
+			b.tasks[i].ID, shortKey(e.Key()), e.Revision(), b.revs[i])
 		return false, nil
 	}
 	r, err := b.c.openReply(b.ctx, e.Key(), e.Value())
@@ -173,14 +187,16 @@ func (b *batch) take(e jetstream.KeyValueEntry, republish bool) (bool, error) {
 		err = checkReply(b.tasks[i], r)
 	}
 	if err == nil {
-		b.replies[i] = r
+		b.replies[i], b.revs[i] = r, e.Revision()
 		b.done++
 		return true, nil
 	}
 	b.bad[i]++
 	b.st.Discarded++
 	b.c.logf("queue: job %s: discarded the reply stored under %s (revision %d): %v", b.tasks[i].ID, shortKey(e.Key()), e.Revision(), err)
-	if derr := b.c.results.Delete(b.ctx, e.Key(), jetstream.LastRevision(e.Revision())); derr != nil && !errors.Is(derr, jetstream.ErrKeyExists) {
+	// Purged only if nothing was stored after it (a later entry is judged
+	// on its own when the watch delivers it).
+	if derr := b.c.results.Purge(b.ctx, e.Key(), jetstream.LastRevision(e.Revision())); derr != nil && !errors.Is(derr, jetstream.ErrKeyExists) {
 		b.c.logf("queue: deleting the discarded reply %s: %v", shortKey(e.Key()), derr)
 	}
 	if b.bad[i] >= MaxBadReplies {

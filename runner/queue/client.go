@@ -95,7 +95,7 @@ func NewClient(ctx context.Context, nc *nats.Conn, secret []byte) (*Client, erro
 	c.results, err = js.CreateOrUpdateKeyValue(ctx, jetstream.KeyValueConfig{
 		Bucket:      ResultBucket,
 		Description: "ordplan replies by batch and job index",
-		History:     1,
+		History:     ResultHistory,
 		TTL:         ResultTTL,
 		Storage:     jetstream.FileStorage,
 	})

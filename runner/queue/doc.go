@@ -28,8 +28,11 @@
 //     answered with an error instead of being computed again;
 //   - the key-value bucket ordplan-results, where a worker stores the reply
 //     to job <index> of batch <batch> under the key <batch>.<index> with a
-//     create-only write, so the first reply wins and a second one is
-//     dropped;
+//     create-only write, so a second worker's reply is dropped; the bucket
+//     keeps ResultHistory revisions of a key and the coordinator watches
+//     them all in revision order, so the first valid revision wins even
+//     when something overwrote it before the coordinator read it (a later
+//     revision is logged and ignored);
 //   - the object store ordplan-data, where data files are kept under the
 //     hex SHA-256 of their bytes; workers copy them into a local cache and
 //     check the hash before fitting (objects expire after DataTTL);

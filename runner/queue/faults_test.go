@@ -31,6 +31,27 @@ func storeReply(t *testing.T, ctx context.Context, c *Client, key string, r *Rep
 	}
 }
 
+// storeFirstAndLate stores a valid reply to job 0 of the plan's batch (999
+// iterations: the first) and overwrites it with another (777: the late
+// one); it returns the batch id.
+func storeFirstAndLate(t *testing.T, ctx context.Context, c *Client, path string, jobs []runner.Job) string {
+	t.Helper()
+	id, err := RunID("plan-hash", jobs)
+	if err != nil {
+		t.Fatal(err)
+	}
+	first, err := runner.ExecuteJob(path, jobs[0])
+	if err != nil {
+		t.Fatal(err)
+	}
+	first.Iterations = 999
+	storeReply(t, ctx, c, resultKey(id, 0), &Reply{Batch: id, Index: 0, ID: jobs[0].ID, Worker: "first", Result: first}, false)
+	late := *first
+	late.Iterations = 777
+	storeReply(t, ctx, c, resultKey(id, 0), &Reply{Batch: id, Index: 0, ID: jobs[0].ID, Worker: "late", Result: &late}, true)
+	return id
+}
+
 // The first reply to a job wins: a worker's duplicate, a later overwrite
 // and entries of unknown runs or keys are ignored.
 func TestDuplicateAndForeignRepliesIgnored(t *testing.T) {
@@ -56,19 +77,7 @@ func TestDuplicateAndForeignRepliesIgnored(t *testing.T) {
 		info, err := c.jobs.Info(ctx)
 		return err == nil && info.State.Msgs == 2
 	})
-	id, err := RunID("plan-hash", jobs)
-	if err != nil {
-		t.Fatal(err)
-	}
-	first, err := runner.ExecuteJob(path, jobs[0])
-	if err != nil {
-		t.Fatal(err)
-	}
-	first.Iterations = 999 // marks the first reply
-	storeReply(t, ctx, c, resultKey(id, 0), &Reply{Batch: id, Index: 0, ID: jobs[0].ID, Worker: "first", Result: first}, false)
-	late := *first
-	late.Iterations = 777
-	storeReply(t, ctx, c, resultKey(id, 0), &Reply{Batch: id, Index: 0, ID: jobs[0].ID, Worker: "late", Result: &late}, true)
+	id := storeFirstAndLate(t, ctx, c, path, jobs)
 	other := strings.Repeat("f", 64)
 	storeReply(t, ctx, c, resultKey(other, 1), &Reply{Batch: other, Index: 1, ID: jobs[1].ID, Err: "foreign"}, false)
 	storeReply(t, ctx, c, id+".x", &Reply{Batch: id, Index: 1, ID: jobs[1].ID, Err: "bad key"}, false)
@@ -85,6 +94,9 @@ func TestDuplicateAndForeignRepliesIgnored(t *testing.T) {
 	}
 	if o.res[0].Iterations != 999 {
 		t.Errorf("job 0: the reply with %d iterations was taken, not the first; coordinator log:\n%s", o.res[0].Iterations, clog.String())
+	}
+	if !strings.Contains(clog.String(), "ignored a later reply") {
+		t.Errorf("job 0: the overwrite is not logged:\n%s", clog.String())
 	}
 	want, _ := runner.ExecuteJob(path, jobs[1])
 	if math.Float64bits(o.res[1].LogLik) != math.Float64bits(want.LogLik) {
@@ -173,5 +185,34 @@ func TestPartitionWithOneCategoryRefused(t *testing.T) {
 	_, err := FitPartitioned(ctx, c, parts, whole, m, PartitionOptions{Data: data.Options{Outcome: "y", Predictors: []string{"x"}}})
 	if err == nil || !strings.Contains(err.Error(), `partition b.csv: column "y": only one category`) {
 		t.Fatalf("got %v", err)
+	}
+}
+
+// A reply overwritten before the coordinator reads it does not displace
+// it: the bucket keeps a key's revisions, and the coordinator takes the
+// first valid one in revision order, whenever it starts watching. The
+// overwrite is stored before the coordinator starts (a restarted
+// coordinator, or a live watch the server has not yet fed), which forces
+// the interleaving without timing.
+func TestOverwrittenReplyBeforeWatchIgnored(t *testing.T) {
+	ctx := testContext(t, 60*time.Second)
+	url := localserver.ForTest(t)
+	c := connect(t, ctx, url)
+	path, jobs := gssJobs(t, fit.ParallelEffects)
+	storeFirstAndLate(t, ctx, c, path, jobs)
+	clog := &LogBuffer{}
+	co := NewCoordinator(ctx, c, "plan-hash", clog)
+	if _, err := co.AddData(path); err != nil {
+		t.Fatal(err)
+	}
+	res, errs := co.Execute(jobs)
+	if errs[0] != nil {
+		t.Fatal(errs[0])
+	}
+	if res[0].Iterations != 999 {
+		t.Errorf("the reply with %d iterations was taken, not the first; coordinator log:\n%s", res[0].Iterations, clog.String())
+	}
+	if !strings.Contains(clog.String(), "ignored a later reply") {
+		t.Errorf("the overwrite is not logged:\n%s", clog.String())
 	}
 }

@@ -82,6 +82,11 @@ func TestRewrittenResultDiscarded(t *testing.T) {
 		"sealed, wrong key":  seal([]byte("not the secret, but long enough"), sealReply, resultKey(id, 0), payload),
 		"another key's seal": seal(testSecret, sealReply, resultKey(id, 1), payload),
 	} {
+		// Purged first: an overwrite alone leaves the valid revision, which
+		// wins (TestOverwrittenReplyBeforeWatchIgnored).
+		if err := c.results.Purge(ctx, resultKey(id, 0)); err != nil {
+			t.Fatal(err)
+		}
 		if _, err := c.results.Put(ctx, resultKey(id, 0), b); err != nil {
 			t.Fatal(err)
 		}

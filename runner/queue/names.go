@@ -23,6 +23,12 @@ const (
 	// ResultTTL is how long replies (and unclaimed jobs) are kept for a
 	// restarted coordinator.
 	ResultTTL = 7 * 24 * time.Hour
+	// ResultHistory is how many revisions of a result key the bucket
+	// keeps (the most JetStream allows). Workers write a key once
+	// (create-only); later revisions come only from overwrites, and the
+	// coordinator takes the first valid revision, so a first reply is
+	// lost only after this many overwrites before the coordinator reads it.
+	ResultHistory = 64
 	// DataTTL is how long a data file stays in the data store after its
 	// upload; a coordinator uploads again a copy older than half of it.
 	DataTTL = 7 * 24 * time.Hour
