@@ -135,13 +135,7 @@ func (pb *pooledBrant) test(names []string) fit.Test {
 func pooledPairTest(or *OutcomeResult, kind fit.TestKind, f, full *FitEntry) fit.Test {
 	switch kind {
 	case fit.TestWald:
-		var vars []string
-		for k, e := range full.Result.Model.Effects {
-			if e == fit.Nonparallel && f.Result.Model.Effects[k] == fit.Parallel {
-				vars = append(vars, f.Result.Predictors[k])
-			}
-		}
-		return pooledEqualSlopes(full, vars)
+		return pooledEqualSlopes(full, freedIn(f, full))
 	case fit.TestScore:
 		return pooledScore(or, f, full.Result.Model)
 	case fit.TestBrant:

@@ -348,18 +348,24 @@ func wordsOf[T fmt.Stringer](xs []T) []string {
 	return out
 }
 
+// freedIn lists the predictors parallel in f and nonparallel in full: the
+// columns whose equal slopes a Wald test of f within full tests.
+func freedIn(f, full *FitEntry) []string {
+	var vars []string
+	for k, e := range full.Result.Model.Effects {
+		if e == fit.Nonparallel && f.Result.Model.Effects[k] == fit.Parallel {
+			vars = append(vars, f.Result.Predictors[k])
+		}
+	}
+	return vars
+}
+
 // pairTest computes the named test of restricted against full; the plan
 // check has made sure it is defined for the pair.
 func pairTest(kind fit.TestKind, d *fit.Data, brant *fit.BrantResult, f, full *FitEntry) fit.Test {
 	switch kind {
 	case fit.TestWald:
-		var vars []string
-		for k, e := range full.Result.Model.Effects {
-			if e == fit.Nonparallel && f.Result.Model.Effects[k] == fit.Parallel {
-				vars = append(vars, f.Result.Predictors[k])
-			}
-		}
-		return fit.WaldEqualSlopes(full.Result, vars)
+		return fit.WaldEqualSlopes(full.Result, freedIn(f, full))
 	case fit.TestScore:
 		return fit.ScoreTest(d, f.Result, full.Result.Model)
 	case fit.TestBrant:
