@@ -2,10 +2,16 @@
 // writes a Markdown table: time, Newton iterations, peak memory against the
 // design matrix, the time of one Newton iteration over the time of the
 // weighted cross-products it needs, and the time of the twelve-model grid
-// on all cores over the same fits run one after another. Every ratio is
-// measured within one run; nothing is asserted.
+// on all cores over the same fits run one after another; and the reading of
+// data files, the chunked parallel CSV reader against the record-at-a-time
+// one. Every ratio is measured within one run; nothing is asserted.
 //
 //	go run ./bench -out bench/README.md       # the full table (about 15 minutes here)
 //	go run ./bench -smoke                      # a small variant for CI
 //	go run ./bench -only targets               # the fitting engine's speed targets only
+//	go run ./bench -only ingest                # reading data only: CSV (three dialects) and
+//	                                           # Parquet, 1e6 rows x 10 predictors, each reading in
+//	                                           # a fresh process: seconds, CPU, MB/s against the
+//	                                           # 250 MB/s target, peak heap and RSS against the
+//	                                           # design matrix
 package main
