@@ -346,6 +346,25 @@ func pooledTestBlock(an *Analysis, or *OutcomeResult, perSet [][]*FitEntry, appr
 
 // pooledLR is the D3 test of restricted within full: the likelihood-ratio
 // statistics of each set at the set's own estimates and at the pooled ones.
+// pooledTIC is TIC on imputed data: each set's fit with that set's rows,
+// the value and the penalty averaged over the sets, as AIC and BIC are.
+func pooledTIC(or *OutcomeResult, f *FitEntry, sampling bool) (value, penalty float64, err error) {
+	run := or.Imputed
+	i := slices.Index(or.Fits, f)
+	if i < 0 || len(run.Fits) != len(run.Sets) {
+		return 0, 0, fmt.Errorf("%s was not fitted on every imputed set", f.ID)
+	}
+	for k, d := range run.Sets {
+		v, pen, err := fit.TIC(d, run.Fits[k][i].Result, sampling)
+		if err != nil {
+			return 0, 0, fmt.Errorf("imputed set %d: %w", k+1, err)
+		}
+		value += v / float64(len(run.Sets))
+		penalty += pen / float64(len(run.Sets))
+	}
+	return value, penalty, nil
+}
+
 func pooledLR(or *OutcomeResult, perSet [][]*FitEntry, r, f *FitEntry) fit.Test {
 	if r == nil || f == nil {
 		return missingTest(fit.TestLR, "a model was not fitted")

@@ -257,6 +257,27 @@ func TestImputedDifferentSets(t *testing.T) {
 	if rec == nil || rec.Sets != 5 || len(rec.Pooling) != 2 || rec.Pooling[0].Parameters[j].FMI != f.Pooled.FMI[j] {
 		t.Errorf("decisions.json imputation record %+v", rec)
 	}
+	// TIC on imputed data averages each set's TIC, computed with that
+	// set's own fit and rows (as AIC and BIC are averaged), so it does not
+	// depend on which set comes first.
+	env := newRuleEnv(ResolvePlan(p), or)
+	v, pen, err := env.tic(f)
+	if err != nil {
+		t.Fatal(err)
+	}
+	i := slices.Index(or.Fits, f)
+	var wantV, wantPen float64
+	for k, d := range or.Imputed.Sets {
+		vk, pk, err := fit.TIC(d, or.Imputed.Fits[k][i].Result, false)
+		if err != nil {
+			t.Fatal(err)
+		}
+		wantV += vk / 5
+		wantPen += pk / 5
+	}
+	if math.Abs(v-wantV) > 1e-9*math.Abs(wantV) || math.Abs(pen-wantPen) > 1e-9*wantPen || math.Abs(v-2*pen+2*f.Result.LogLik) > 1e-8*math.Abs(v) {
+		t.Errorf("pooled TIC %g (penalty %g), want the mean over the sets %g (penalty %g)", v, pen, wantV, wantPen)
+	}
 	// Pooled marginal effects by hand from the per-set effects.
 	fits, err := or.chosenPerSet()
 	if err != nil {

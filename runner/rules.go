@@ -41,6 +41,9 @@ func newRuleEnv(an *Analysis, or *OutcomeResult) *ruleEnv {
 	env := &ruleEnv{an: an, or: or, probCache: map[string][]float64{}, ticCache: map[*FitEntry][3]float64{}}
 	env.probs = func(f *FitEntry, X, off []float64) ([]float64, error) { return f.Result.Probabilities(X, off) }
 	env.tic = func(f *FitEntry) (float64, float64, error) {
+		if or.Imputed != nil {
+			return pooledTIC(or, f, an.Errors.Sampling)
+		}
 		return fit.TIC(or.FitData, f.Result, an.Errors.Sampling)
 	}
 	var brant *fit.BrantResult
