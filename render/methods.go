@@ -80,6 +80,13 @@ func writeMethods(d *doc, r *runner.Result) {
 		s = append(s, fmt.Sprintf("The outcome %s (%d ordered categories, from %s to %s) was analysed with ordinal regression models fitted by maximum likelihood (ordplan %s).",
 			or.Outcome.Label, len(ds.Categories), ds.Categories[0], ds.Categories[len(ds.Categories)-1], r.Version))
 		switch {
+		case or.Imputed != nil && or.Imputed.Source != "chained":
+			// The rows read include every imputed set; each set is complete.
+			within := ""
+			if len(p.Subset) > 0 {
+				within = " that met the plan's subset conditions"
+			}
+			s = append(s, fmt.Sprintf("Each of the %d imputed data sets held %d rows%s, all used.", or.Imputed.M, or.Imputed.Rows, within))
 		case ds.RowsOutside > 0:
 			var conds []string
 			for _, c := range p.Subset {
