@@ -51,7 +51,7 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 		fmt.Fprintf(tw, "Log-likelihood\t%s\n", numfmt.Fixed(r.LogLik, 6))
 		fmt.Fprintf(tw, "Parameters\t%d\n", r.NParams)
 		fmt.Fprintf(tw, "AIC / BIC\t%s / %s\n", numfmt.Fixed(r.AIC, 3), numfmt.Fixed(r.BIC, 3))
-		fmt.Fprintf(tw, "Standard errors\t%s\n", covName(r.CovType))
+		fmt.Fprintf(tw, "Standard errors\t%s\n", r.CovType.Label())
 	}
 	if err := tw.Flush(); err != nil {
 		return err
@@ -86,22 +86,6 @@ func statusLine(r *fit.Result) string {
 		return fmt.Sprintf("%s: converged in %d Newton iterations, max |score| %.2g", r.Status, r.Iterations, r.MaxAbsScore)
 	}
 	return string(r.Status)
-}
-
-func covName(c fit.Covariance) string {
-	switch c {
-	case fit.Expected:
-		return "expected information"
-	case fit.Observed:
-		return "observed information"
-	case fit.Sandwich:
-		return "sandwich (HC1: times N/(N-P))"
-	case fit.SandwichPlain:
-		return "sandwich (HC0: no small-sample factor)"
-	case fit.Clustered:
-		return "cluster-robust sandwich (CR1: times G/(G-1) (N-1)/(N-P))"
-	}
-	return c.String()
 }
 
 // BaselineTable writes the baseline-category form of an adjacent

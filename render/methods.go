@@ -148,7 +148,7 @@ func writeMethods(d *doc, r *runner.Result) {
 			}
 			s = append(s, fmt.Sprintf("The parallel-lines assumption was tested by %s tests (alpha = %g), overall and for each predictor.", joinAnd(tests), p.Tests.Alpha))
 		}
-		cov := covarianceOfPlan(r)
+		cov := r.Errors().Covariance.Phrase()
 		if strings.Contains(cov, "sandwich") {
 			cov += " " + c.cite("white")
 		}
@@ -179,20 +179,6 @@ func writeMethods(d *doc, r *runner.Result) {
 	}
 	d.p("References:")
 	d.list(c.list())
-}
-
-func covarianceOfPlan(r *runner.Result) string {
-	switch r.Errors().Covariance {
-	case fit.Expected:
-		return "expected information"
-	case fit.Sandwich:
-		return "sandwich estimator with a small-sample factor"
-	case fit.SandwichPlain:
-		return "sandwich estimator without a small-sample factor"
-	case fit.Clustered:
-		return "cluster-robust sandwich estimator"
-	}
-	return "observed information"
 }
 
 func short(h string) string {
