@@ -115,10 +115,24 @@ func scalarRules(m int, q, w, b, dfComplete float64) Scalar {
 	fm := float64(m)
 	t := w + (1+1/fm)*b
 	s := Scalar{Estimate: q, Within: w, Between: b, Total: t, SE: math.Sqrt(t)}
-	s.RIV = (1 + 1/fm) * b / w
-	s.Lambda = (1 + 1/fm) * b / t
+	switch {
+	case b == 0:
+		// No spread between the sets (also when every set's variance is
+		// 0): nothing is added for missing data.
+		s.RIV, s.Lambda = 0, 0
+	case w == 0:
+		// All the variance is between the sets: the limit of the ratios.
+		s.RIV, s.Lambda = math.Inf(1), 1
+	default:
+		s.RIV = (1 + 1/fm) * b / w
+		s.Lambda = (1 + 1/fm) * b / t
+	}
 	s.DF = BarnardRubinDF(m, s.Lambda, dfComplete)
-	s.FMI = (s.RIV + 2/(s.DF+3)) / (s.RIV + 1)
+	if math.IsInf(s.RIV, 1) {
+		s.FMI = 1
+	} else {
+		s.FMI = (s.RIV + 2/(s.DF+3)) / (s.RIV + 1)
+	}
 	return s
 }
 

@@ -319,7 +319,29 @@ func TestD2(t *testing.T) {
 	}
 }
 
-func distChi2Survival(x float64, k int) float64 { return fSurvival(x/float64(k), k, math.Inf(1)) }
+func distChi2Survival(x float64, k int) float64 {
+	return distuv.ChiSquared{K: float64(k)}.Survival(x)
+}
 func distFSurvival(f float64, k int, v float64) float64 {
 	return distuv.F{D1: float64(k), D2: v}.Survival(f)
+}
+
+// TestScalarWithoutWithinVariance: a quantity whose variance is 0 in every
+// set (a standard error that underflowed) pools without NaN: no spread
+// gives the complete-data answer, spread alone gives FMI 1.
+func TestScalarWithoutWithinVariance(t *testing.T) {
+	s, err := PoolScalar([]float64{0.5, 0.5, 0.5}, []float64{0, 0, 0}, 100)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.RIV != 0 || s.Lambda != 0 || s.FMI != 2/(s.DF+3) || math.IsNaN(s.DF) || s.SE != 0 {
+		t.Errorf("no variance at all: %+v", s)
+	}
+	s, err = PoolScalar([]float64{0.4, 0.5, 0.6}, []float64{0, 0, 0}, 100)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !math.IsInf(s.RIV, 1) || s.Lambda != 1 || s.FMI != 1 || math.IsNaN(s.DF) || math.Abs(s.Total-(4.0/3)*0.01) > 1e-15 {
+		t.Errorf("between variance only: %+v", s)
+	}
 }
