@@ -1,6 +1,8 @@
 package main
 
 import (
+	"crypto/sha256"
+	"encoding/hex"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -159,7 +161,8 @@ func writeRun(r *runner.Result, dir string, files map[string][]byte) error {
 }
 
 // staleOutputs lists the outputs named by the run.json in dir that are not
-// among files: plain file names of regular files (never a symlink).
+// among files: plain file names of regular files (never a symlink) whose
+// content still has the SHA-256 the previous run.json recorded.
 func staleOutputs(dir string, files map[string][]byte) []string {
 	path := filepath.Join(dir, "run.json")
 	fi, err := os.Lstat(path)
@@ -181,7 +184,17 @@ func staleOutputs(dir string, files map[string][]byte) []string {
 		if _, keep := files[n]; keep || n != filepath.Base(n) || strings.HasPrefix(n, ".") || n == "run.json" {
 			continue
 		}
-		if fi, err := os.Lstat(filepath.Join(dir, n)); err == nil && fi.Mode().IsRegular() {
+		fi, err := os.Lstat(filepath.Join(dir, n))
+		if err != nil || !fi.Mode().IsRegular() {
+			continue
+		}
+		// Only a file still as the previous run wrote it: one the user
+		// changed since is theirs and stays.
+		c, err := os.ReadFile(filepath.Join(dir, n))
+		if err != nil {
+			continue
+		}
+		if sum := sha256.Sum256(c); hex.EncodeToString(sum[:]) == prev.Outputs[n] {
 			out = append(out, n)
 		}
 	}

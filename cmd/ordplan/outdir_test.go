@@ -1,6 +1,8 @@
 package main
 
 import (
+	"crypto/sha256"
+	"encoding/hex"
 	"os"
 	"path/filepath"
 	"strings"
@@ -70,12 +72,22 @@ func TestLockOutput(t *testing.T) {
 // once the new files are in place; other files of the folder are not.
 func TestStaleOutputsRemoved(t *testing.T) {
 	dir := t.TempDir()
-	os.WriteFile(filepath.Join(dir, "run.json"), []byte(`{"outputs_sha256": {"old.csv": "x", "keep.md": "y", "../escape": "z"}}`), 0o644)
+	// old.csv is as the previous run wrote it (sha256 of "old"); edited.csv
+	// was changed by the user since, so it is theirs and stays.
+	os.WriteFile(filepath.Join(dir, "run.json"), []byte(`{"outputs_sha256": {"old.csv": "`+
+		sha256Hex("old")+
+		`", "edited.csv": "`+sha256Hex("as written")+`", "keep.md": "y", "../escape": "z"}}`), 0o644)
 	os.WriteFile(filepath.Join(dir, "old.csv"), []byte("old"), 0o644)
+	os.WriteFile(filepath.Join(dir, "edited.csv"), []byte("changed by the user"), 0o644)
 	os.WriteFile(filepath.Join(dir, "mine.txt"), []byte("user"), 0o644)
 	files := map[string][]byte{"keep.md": []byte("new"), "run.json": []byte("{}")}
 	stale := staleOutputs(dir, files)
 	if len(stale) != 1 || stale[0] != "old.csv" {
 		t.Fatalf("stale %v", stale)
 	}
+}
+
+func sha256Hex(s string) string {
+	sum := sha256.Sum256([]byte(s))
+	return hex.EncodeToString(sum[:])
 }
