@@ -833,6 +833,14 @@ func (s *Sim) Write(w io.Writer, n int, replicate uint64) error {
 				c.L[m] = o.Cut[m] - c.e[m]
 			}
 			fit.CategoryProbabilities(s.Comparison, s.Backward, s.Link, c.L, c.p)
+			for j, pj := range c.p {
+				if pj < 0 {
+					// The calibration sample did not reach these predictor
+					// values; a row there must not get a category anyway.
+					return fmt.Errorf("%s: assumptions.outcomes.%s.nonparallel: simulated row %d gets a negative probability of category %s: the stated effects make neighbouring boundaries cross at its predictor values; make the effects at neighbouring boundaries closer or give the predictors a range",
+						s.Plan.Path, o.Column, i+1, o.Categories[j])
+				}
+			}
 			u := rng.Float64()
 			y, acc := len(c.p)-1, 0.0
 			for j := 0; j < len(c.p)-1; j++ {
