@@ -133,10 +133,18 @@ func PulkstenisRobinsonTest(d *Data, r *Result, pattern []int, labels []string, 
 		df = t.Groups*(J-1) - r.NParams
 	}
 	x2, dev := 0.0, 0.0
+	undefined := ""
 	for g := range t.Observed {
 		for j, o := range t.Observed[g] {
 			e := t.Expected[g][j]
-			if e <= 0 {
+			if e < 0 || e == 0 && o > 0 {
+				// A negative probability (nonparallel fits) or an observed
+				// count where none is expected: the statistics would
+				// leave the cell out and come out too small.
+				undefined = fmt.Sprintf("not defined for this fit: group %d, category %s has expected count %g and observed count %g", g+1, r.Categories[j], e, o)
+				break
+			}
+			if e == 0 {
 				continue
 			}
 			x2 += (o - e) * (o - e) / e
@@ -145,7 +153,10 @@ func PulkstenisRobinsonTest(d *Data, r *Result, pattern []int, labels []string, 
 			}
 		}
 	}
-	if df <= 0 {
+	if undefined != "" {
+		t.Pearson = failedTest("pulkstenis_robinson_pearson", "%s", undefined)
+		t.Deviance = failedTest("pulkstenis_robinson_deviance", "%s", undefined)
+	} else if df <= 0 {
 		why := fmt.Sprintf("not defined for these data: %d groups of %d categories leave %d degrees of freedom", t.Groups, J, df)
 		t.Pearson = failedTest("pulkstenis_robinson_pearson", "%s", why)
 		t.Deviance = failedTest("pulkstenis_robinson_deviance", "%s", why)
