@@ -49,7 +49,7 @@ type ImputationProgress interface {
 // columns of the terms (with the offset as a complete column) are imputed
 // data.imputation.sets times, and the imputed sets get the design frozen
 // on the first of them.
-func chainedSets(p *plan.Plan, a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Dataset, *design.Design, error) {
+func chainedSets(a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Dataset, *design.Design, error) {
 	spec, dopt := r.Design, r.Options
 	dopt.Refuse, dopt.KeepIncomplete = false, true
 	ds, err := data.LoadFiles(a.Paths(), dopt)
@@ -62,16 +62,16 @@ func chainedSets(p *plan.Plan, a *Analysis, r Reading, opt Options) (*ImputedRun
 	if ds.Incomplete == 0 {
 		return nil, nil, nil, errNothingToImpute
 	}
-	im := p.Data.Imputation
-	cols := chainedColumns(p, r.Outcome, spec, ds)
-	stream := uint64(slices.IndexFunc(p.Outcomes, func(o plan.Outcome) bool { return o.Column == r.Outcome }))
+	im := a.Imputation
+	cols := chainedColumns(im, r, ds)
+	stream := uint64(slices.IndexFunc(a.Outcomes, func(o Reading) bool { return o.Outcome == r.Outcome }))
 	cfg := chained.Config{Sets: im.Sets, Iterations: im.Iterations, Seed: im.Seed, Stream: stream, Donors: chainedDonors, Workers: opt.Workers}
 	if ip, ok := opt.Progress.(ImputationProgress); ok {
 		cfg.Progress = func(done, total int) { ip.Imputed(r.Outcome, done, total) }
 	}
 	res, err := chained.Impute(cols, cfg)
 	if err != nil {
-		return nil, nil, nil, fmt.Errorf("%s: data.missing: impute, outcome %q: %v", p.Path, r.Outcome, err)
+		return nil, nil, nil, fmt.Errorf("%s: data.missing: impute, outcome %q: %v", a.Source, r.Outcome, err)
 	}
 	sets := make([]*data.Dataset, im.Sets)
 	for s, set := range res.Sets {
@@ -79,7 +79,7 @@ func chainedSets(p *plan.Plan, a *Analysis, r Reading, opt Options) (*ImputedRun
 	}
 	dz, fds, err := designSets(spec, sets)
 	if err != nil {
-		return nil, nil, nil, fmt.Errorf("%s: %v (outcome %q)", p.Path, err, r.Outcome)
+		return nil, nil, nil, fmt.Errorf("%s: %v (outcome %q)", a.Source, err, r.Outcome)
 	}
 	run := &ImputedRun{M: im.Sets, Source: "chained", Files: []string{a.DataFile}, Rows: ds.N, Sets: fds, Data: sets,
 		Chained: &ChainedRecord{Outcome: r.Outcome, Method: "chained equations", Sets: im.Sets, Iterations: im.Iterations, Seed: im.Seed,
@@ -91,8 +91,8 @@ func chainedSets(p *plan.Plan, a *Analysis, r Reading, opt Options) (*ImputedRun
 // chainedColumns is the table to impute: the outcome (ordered), the raw
 // columns of the terms (categorical ones as level indexes), and the
 // offset.
-func chainedColumns(p *plan.Plan, outcome string, spec design.Spec, ds *data.Dataset) []chained.Column {
-	im := p.Data.Imputation
+func chainedColumns(im *plan.Imputation, r Reading, ds *data.Dataset) []chained.Column {
+	outcome, spec := r.Outcome, r.Design
 	y := make([]float64, ds.N)
 	for i, v := range ds.Y {
 		y[i] = float64(v)
@@ -115,7 +115,7 @@ func chainedColumns(p *plan.Plan, outcome string, spec design.Spec, ds *data.Dat
 		cols = append(cols, c)
 	}
 	if ds.Offset != nil {
-		cols = append(cols, chained.Column{Name: p.Data.Offset, Values: ds.Offset})
+		cols = append(cols, chained.Column{Name: r.Options.Offset, Values: ds.Offset})
 	}
 	return cols
 }

@@ -19,8 +19,8 @@ func CheckData(p *plan.Plan) error {
 		if err := a.CheckDesign(r, ld.FitData); err != nil {
 			return err
 		}
-		if p.Data.Imputed != nil {
-			if _, _, _, err := imputedSets(p, r); err != nil {
+		if a.Imputed != nil {
+			if _, _, _, err := imputedSets(a, r); err != nil {
 				return err
 			}
 		}

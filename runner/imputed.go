@@ -38,8 +38,8 @@ type ImputedRun struct {
 // imputedSets reads the imputed sets of an outcome, checks that they are
 // complete and have the same rows and columns, and builds their designs
 // with the constants (centring, knots) frozen on the first set.
-func imputedSets(p *plan.Plan, r Reading) (*ImputedRun, []*data.Dataset, *design.Design, error) {
-	im := p.Data.Imputed
+func imputedSets(a *Analysis, r Reading) (*ImputedRun, []*data.Dataset, *design.Design, error) {
+	im, src := a.Imputed, a.Source
 	spec, dopt := r.Design, r.Options
 	dopt.Refuse = false
 	run := &ImputedRun{}
@@ -49,25 +49,25 @@ func imputedSets(p *plan.Plan, r Reading) (*ImputedRun, []*data.Dataset, *design
 		run.Source, run.Files = "files", im.Files
 		var first []string
 		for k, path := range im.Paths {
-			h, err := data.HeaderDialect(path, p.Data.Dialect())
+			h, err := data.HeaderDialect(path, dopt.Dialect)
 			if err != nil {
-				return nil, nil, nil, fmt.Errorf("%s: data.imputed.files[%d]: %v", p.Path, k, err)
+				return nil, nil, nil, fmt.Errorf("%s: data.imputed.files[%d]: %v", src, k, err)
 			}
 			if k == 0 {
 				first = h
 			} else if !slices.Equal(h, first) {
-				return nil, nil, nil, fmt.Errorf("%s: data.imputed.files: %s has the columns %s but %s has %s; imputed sets must have the same columns", p.Path, im.Files[k], strings.Join(h, ", "), im.Files[0], strings.Join(first, ", "))
+				return nil, nil, nil, fmt.Errorf("%s: data.imputed.files: %s has the columns %s but %s has %s; imputed sets must have the same columns", src, im.Files[k], strings.Join(h, ", "), im.Files[0], strings.Join(first, ", "))
 			}
 			ds, err := data.Load(path, dopt)
 			if err != nil {
-				return nil, nil, nil, fmt.Errorf("%s (plan %s, data.imputed.files[%d], outcome %q)", err, p.Path, k, r.Outcome)
+				return nil, nil, nil, fmt.Errorf("%s (plan %s, data.imputed.files[%d], outcome %q)", err, src, k, r.Outcome)
 			}
 			sets = append(sets, ds)
 			names = append(names, im.Files[k])
 		}
 	} else {
 		run.Source, run.Files, run.Column = "stacked", []string{im.File}, im.Column
-		m, err := imputationNumbers(p, im)
+		m, err := imputationNumbers(src, im, dopt.Dialect)
 		if err != nil {
 			return nil, nil, nil, err
 		}
@@ -76,7 +76,7 @@ func imputedSets(p *plan.Plan, r Reading) (*ImputedRun, []*data.Dataset, *design
 			o.Keep = append(slices.Clone(dopt.Keep), data.Condition{Column: im.Column, Op: "==", Number: float64(k), Key: "data.imputed.column"})
 			ds, err := data.Load(im.Path, o)
 			if err != nil {
-				return nil, nil, nil, fmt.Errorf("%s (plan %s, data.imputed, imputed set %d, outcome %q)", err, p.Path, k, r.Outcome)
+				return nil, nil, nil, fmt.Errorf("%s (plan %s, data.imputed, imputed set %d, outcome %q)", err, src, k, r.Outcome)
 			}
 			sets = append(sets, ds)
 			names = append(names, fmt.Sprintf("%s (%s = %d)", im.File, im.Column, k))
@@ -91,20 +91,20 @@ func imputedSets(p *plan.Plan, r Reading) (*ImputedRun, []*data.Dataset, *design
 			}
 		}
 		if len(miss) > 0 {
-			return nil, nil, nil, fmt.Errorf("%s: data.imputed: imputed set %d, %s, has rows with missing values or zero weight (%s); every imputed set must be complete in the columns the plan uses", p.Path, k+1, names[k], strings.Join(miss, ", "))
+			return nil, nil, nil, fmt.Errorf("%s: data.imputed: imputed set %d, %s, has rows with missing values or zero weight (%s); every imputed set must be complete in the columns the plan uses", src, k+1, names[k], strings.Join(miss, ", "))
 		}
 		if ds.N != sets[0].N {
-			return nil, nil, nil, fmt.Errorf("%s: data.imputed: imputed set %d, %s, has %d rows but set 1, %s, has %d; imputed sets must hold the same rows", p.Path, k+1, names[k], ds.N, names[0], sets[0].N)
+			return nil, nil, nil, fmt.Errorf("%s: data.imputed: imputed set %d, %s, has %d rows but set 1, %s, has %d; imputed sets must hold the same rows", src, k+1, names[k], ds.N, names[0], sets[0].N)
 		}
 		if !slices.Equal(ds.Categories, sets[0].Categories) {
-			return nil, nil, nil, fmt.Errorf("%s: data.imputed: imputed set %d, %s, has the outcome categories %s but set 1 has %s; declare the outcome's categories in the plan", p.Path, k+1, names[k], strings.Join(ds.Categories, ", "), strings.Join(sets[0].Categories, ", "))
+			return nil, nil, nil, fmt.Errorf("%s: data.imputed: imputed set %d, %s, has the outcome categories %s but set 1 has %s; declare the outcome's categories in the plan", src, k+1, names[k], strings.Join(ds.Categories, ", "), strings.Join(sets[0].Categories, ", "))
 		}
 	}
 	run.Rows = sets[0].N
 	run.Data = sets
 	dz, fds, err := designSets(spec, sets)
 	if err != nil {
-		return nil, nil, nil, fmt.Errorf("%s: %v (outcome %q)", p.Path, err, r.Outcome)
+		return nil, nil, nil, fmt.Errorf("%s: %v (outcome %q)", src, err, r.Outcome)
 	}
 	run.Sets = fds
 	return run, sets, dz, nil
@@ -132,9 +132,9 @@ func designSets(spec design.Spec, sets []*data.Dataset) (*design.Design, []*fit.
 // and returns the number of imputed sets: the numbers must be whole, 0
 // (the original data, not analysed) or 1..m without gaps, m >= 2, and
 // every set must have as many rows as set 1.
-func imputationNumbers(p *plan.Plan, im *plan.Imputed) (int, error) {
+func imputationNumbers(src string, im *plan.Imputed, dl data.Dialect) (int, error) {
 	rows := map[int]int{}
-	err := data.ColumnCells(im.Path, p.Data.Dialect(), im.Column, func(line int, cell string) error {
+	err := data.ColumnCells(im.Path, dl, im.Column, func(line int, cell string) error {
 		k, err := strconv.Atoi(cell)
 		if err != nil || k < 0 {
 			return fmt.Errorf("%s:%d: column %s: imputation number %q is not a whole number 0 or more (0 marks the original data)", im.File, line, im.Column, cell)
@@ -145,9 +145,9 @@ func imputationNumbers(p *plan.Plan, im *plan.Imputed) (int, error) {
 	var de *data.Error
 	switch {
 	case errors.As(err, &de) && de.Line == 0 && de.Column == im.Column:
-		return 0, fmt.Errorf("%s: data.imputed.column: column %q is not in %s", p.Path, im.Column, im.File)
+		return 0, fmt.Errorf("%s: data.imputed.column: column %q is not in %s", src, im.Column, im.File)
 	case errors.As(err, &de):
-		return 0, fmt.Errorf("%s: data.imputed.file: %v", p.Path, err)
+		return 0, fmt.Errorf("%s: data.imputed.file: %v", src, err)
 	case err != nil:
 		return 0, err
 	}
@@ -454,32 +454,32 @@ func fTest(kind fit.TestKind, t impute.FTest, llr, llf float64) fit.Test {
 // runImputedOutcome analyses one outcome on multiply imputed data: the
 // grid is fitted on every imputed set and pooled, the tests are pooled
 // (D3, D1), and the rules run on the pooled fits.
-func runImputedOutcome(p *plan.Plan, an *Analysis, r Reading, oc plan.Outcome, opt Options) (*OutcomeResult, error) {
-	if opt.Executor != nil && p.Data.Imputes() {
-		return nil, fmt.Errorf("%s: data.missing: impute: imputation by chained equations and the analysis of its imputed sets run on this machine only; run without --queue", p.Path)
+func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*OutcomeResult, error) {
+	if opt.Executor != nil && an.Imputes() {
+		return nil, fmt.Errorf("%s: data.missing: impute: imputation by chained equations and the analysis of its imputed sets run on this machine only; run without --queue", an.Source)
 	}
 	if opt.Executor != nil {
-		return nil, fmt.Errorf("%s: data.imputed: plans on imputed data run on this machine only; run without --queue", p.Path)
+		return nil, fmt.Errorf("%s: data.imputed: plans on imputed data run on this machine only; run without --queue", an.Source)
 	}
 	var run *ImputedRun
 	var sets []*data.Dataset
 	var dz *design.Design
 	var err error
-	if p.Data.Imputes() {
+	if an.Imputes() {
 		// The sets keep the original data's missing-value table.
-		run, sets, dz, err = chainedSets(p, an, r, opt)
+		run, sets, dz, err = chainedSets(an, r, opt)
 	} else {
-		run, sets, dz, err = imputedSets(p, r)
+		run, sets, dz, err = imputedSets(an, r)
 	}
 	if err != nil {
 		return nil, err
 	}
 	ds := *sets[0]
-	if !p.Data.Imputes() {
+	if !an.Imputes() {
 		// The original file: its missing values are described in the report.
 		orig, err := data.LoadFiles(an.Paths(), r.Options)
 		if err != nil {
-			return nil, fmt.Errorf("%s (plan %s, outcome %q)", err, p.Path, oc.Column)
+			return nil, fmt.Errorf("%s (plan %s, outcome %q)", err, an.Source, oc.Column)
 		}
 		ds.Missing = orig.Missing
 	}
@@ -492,7 +492,7 @@ func runImputedOutcome(p *plan.Plan, an *Analysis, r Reading, oc plan.Outcome, o
 	}
 	for k, d := range run.Sets {
 		if err := fit.CheckDesign(d); err != nil {
-			return nil, fmt.Errorf("%s: outcome %q, imputed set %d: %v", p.Path, oc.Column, k+1, err)
+			return nil, fmt.Errorf("%s: outcome %q, imputed set %d: %v", an.Source, oc.Column, k+1, err)
 		}
 	}
 	backward := an.Models.Backward()
@@ -536,8 +536,8 @@ func TestStatistic(t fit.Test) string {
 
 // pinImputed pins the imputed data files for the run (every reader parses
 // the bytes whose hashes run.json records) and returns their references.
-func pinImputed(p *plan.Plan) ([]DataRef, func(), error) {
-	im := p.Data.Imputed
+func pinImputed(a *Analysis) ([]DataRef, func(), error) {
+	im := a.Imputed
 	if im == nil {
 		return nil, func() {}, nil
 	}
@@ -545,21 +545,9 @@ func pinImputed(p *plan.Plan) ([]DataRef, func(), error) {
 	if files == nil {
 		files, paths, key = []string{im.File}, []string{im.Path}, "data.imputed.file"
 	}
-	var refs []DataRef
-	var unpins []func()
-	release := func() {
-		for _, u := range unpins {
-			u()
-		}
-	}
-	for i, path := range paths {
-		h, unpin, err := data.Pin(path)
-		if err != nil {
-			release()
-			return nil, func() {}, fmt.Errorf("%s: %s: %v", p.Path, key, err)
-		}
-		unpins = append(unpins, unpin)
-		refs = append(refs, DataRef{File: files[i], SHA256: h})
+	refs, release, err := pinFiles(files, paths)
+	if err != nil {
+		return nil, func() {}, fmt.Errorf("%s: %s: %v", a.Source, key, err)
 	}
 	return refs, release, nil
 }

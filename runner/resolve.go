@@ -22,9 +22,15 @@ type Analysis struct {
 	Plan     bool   // resolved from a plan (messages then name plan keys)
 	DataFile string // the data file as the plan or the flag names it (for parts: PartsName)
 	DataPath string // where the data file is read
-	// DataPaths are the files of data held as parts (nil: DataPath).
-	DataPaths []string
-	Outcomes  []Reading
+	// DataPaths are the files of data held as parts (nil: DataPath), and
+	// DataFiles the parts as the plan names them.
+	DataPaths, DataFiles []string
+	// Imputed names imputed versions of the data made elsewhere (nil:
+	// none); Imputation says how the program imputes the data itself
+	// (data.missing: impute; nil otherwise).
+	Imputed    *plan.Imputed
+	Imputation *plan.Imputation
+	Outcomes   []Reading
 	// Fit are the options of every fit: model-based errors (observed or
 	// expected information) and the workers of one fit.
 	Fit    fit.Options
@@ -126,7 +132,11 @@ func ResolvePlan(p *plan.Plan) *Analysis {
 		Errors: covariancePolicy(p.Covariance, p.Data.Sampling()),
 		Models: p.Models, Tests: p.Tests, Rules: p.Rules, Inference: p.Inference, Level: p.Report.ConfidenceLevel}
 	if p.Data.Parts != nil {
-		a.DataPaths = p.Data.PartPaths
+		a.DataPaths, a.DataFiles = p.Data.PartPaths, p.Data.PartFiles
+	}
+	a.Imputed = p.Data.Imputed
+	if p.Data.Imputes() {
+		a.Imputation = p.Data.Imputation
 	}
 	a.Fit = a.Errors.fitOptions(1) // the grid runs its fits in parallel
 	for _, oc := range p.Outcomes {
@@ -153,6 +163,10 @@ func ResolvePlan(p *plan.Plan) *Analysis {
 	}
 	return a
 }
+
+// Imputes reports whether the program imputes the missing values itself
+// (data.missing: impute).
+func (a *Analysis) Imputes() bool { return a.Imputation != nil }
 
 // Weighted reports whether the rows carry weights (frequency or sampling).
 func (a *Analysis) Weighted() bool {

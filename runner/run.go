@@ -33,24 +33,26 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 	if opt.Workers <= 0 {
 		opt.Workers = runtime.GOMAXPROCS(0)
 	}
-	// The data file (and the new-rows file) are read once: every reader
-	// during the run parses the bytes whose hash the run records.
-	dataHash, parts, unpin, err := pinData(p)
+	an := ResolvePlan(p)
+	// The data file (and the new-rows file, the imputed files) are read
+	// once: every reader during the run parses the bytes whose hash the
+	// run records.
+	dataHash, parts, unpin, err := pinData(an)
 	if err != nil {
 		return nil, err
 	}
 	defer unpin()
-	res := &Result{Plan: p, DataHash: dataHash, DataParts: parts, Version: Version,
+	res := &Result{Plan: p, Analysis: an, DataHash: dataHash, DataParts: parts, Version: Version,
 		GoVersion: runtime.Version(), Platform: runtime.GOOS + "/" + runtime.GOARCH}
-	if p.Inference.PredictPath != "" {
-		h, unpinNew, err := data.Pin(p.Inference.PredictPath)
+	if an.Inference.PredictPath != "" {
+		h, unpinNew, err := data.Pin(an.Inference.PredictPath)
 		if err != nil {
-			return nil, fmt.Errorf("%s: inference.predict: %v", p.Path, err)
+			return nil, fmt.Errorf("%s: inference.predict: %v", an.Source, err)
 		}
 		defer unpinNew()
 		res.NewRowsHash = h
 	}
-	imputed, unpinImputed, err := pinImputed(p)
+	imputed, unpinImputed, err := pinImputed(an)
 	if err != nil {
 		return nil, err
 	}
@@ -62,11 +64,9 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 	if p.Report.Timestamp {
 		res.Started = time.Now().UTC().Format(time.RFC3339)
 	}
-	an := ResolvePlan(p)
-	res.Analysis = an
 	res.Notes = append(res.Notes, an.Errors.Notes()...)
 	for i, oc := range p.Outcomes {
-		or, err := runOutcome(p, an, an.Outcomes[i], oc, opt, res.DataHash)
+		or, err := runOutcome(an, an.Outcomes[i], oc, opt, res.DataHash)
 		if err != nil {
 			return nil, err
 		}
@@ -79,10 +79,10 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 // runOutcome resolves, then does: the outcome's data and design, the
 // partial sets, the grid of fits, the tests, the rules, overall fit and
 // inference.
-func runOutcome(p *plan.Plan, an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash string) (*OutcomeResult, error) {
+func runOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash string) (*OutcomeResult, error) {
 	var notes []string
-	if p.Data.Imputed != nil || p.Data.Imputes() {
-		or, err := runImputedOutcome(p, an, r, oc, opt)
+	if an.Imputed != nil || an.Imputes() {
+		or, err := runImputedOutcome(an, r, oc, opt)
 		if !errors.Is(err, errNothingToImpute) {
 			return or, err
 		}
@@ -317,33 +317,46 @@ func (or *OutcomeResult) OnlyParallel(a fit.Comparison, term string, l fit.Link)
 // pinData reads the data once (see data.Pin) and gives its hash: the
 // file's SHA-256, or for data held as parts the SHA-256 of the parts'
 // hex SHA-256s, one per line in order (PartsHash), with each part's hash.
-func pinData(p *plan.Plan) (string, []DataRef, func(), error) {
-	if p.Data.Parts == nil {
-		h, unpin, err := data.Pin(p.Data.Path)
+func pinData(a *Analysis) (string, []DataRef, func(), error) {
+	if a.DataPaths == nil {
+		h, unpin, err := data.Pin(a.DataPath)
 		if err != nil {
-			return "", nil, nil, fmt.Errorf("%s: data.file: %v", p.Path, err)
+			return "", nil, nil, fmt.Errorf("%s: data.file: %v", a.Source, err)
 		}
 		return h, nil, unpin, nil
 	}
+	refs, unpin, err := pinFiles(a.DataFiles, a.DataPaths)
+	if err != nil {
+		return "", nil, nil, fmt.Errorf("%s: data.parts: %v", a.Source, err)
+	}
+	hashes := make([]string, len(refs))
+	for i, r := range refs {
+		hashes[i] = r.SHA256
+	}
+	return PartsHash(hashes), refs, unpin, nil
+}
+
+// pinFiles pins files (named files, read at paths) for the run and
+// returns their references, or the first error naming its file (nothing
+// is left pinned then).
+func pinFiles(files, paths []string) ([]DataRef, func(), error) {
+	var refs []DataRef
 	var unpins []func()
-	unpinAll := func() {
+	release := func() {
 		for _, u := range unpins {
 			u()
 		}
 	}
-	var refs []DataRef
-	var hashes []string
-	for i, path := range p.Data.PartPaths {
+	for i, path := range paths {
 		h, unpin, err := data.Pin(path)
 		if err != nil {
-			unpinAll()
-			return "", nil, nil, fmt.Errorf("%s: data.parts: %s: %v", p.Path, p.Data.PartFiles[i], err)
+			release()
+			return nil, nil, fmt.Errorf("%s: %v", files[i], err)
 		}
 		unpins = append(unpins, unpin)
-		refs = append(refs, DataRef{File: p.Data.PartFiles[i], SHA256: h})
-		hashes = append(hashes, h)
+		refs = append(refs, DataRef{File: files[i], SHA256: h})
 	}
-	return PartsHash(hashes), refs, unpinAll, nil
+	return refs, release, nil
 }
 
 // PartsHash is the hash of data held as parts: the hex SHA-256 of the
