@@ -3,6 +3,7 @@ package runner
 import (
 	"encoding/json"
 	"fmt"
+	"math"
 	"sort"
 	"strings"
 
@@ -123,7 +124,11 @@ func patternSplit(ld *Loaded, r *fit.Result, sampling bool) *PatternSplitRecord 
 		rec.NotComputed = "no categorical predictors: the tests group the rows by the levels of the categorical predictors"
 		return rec
 	}
-	pattern, labels := covariatePatterns(ld, cats)
+	pattern, labels, err := covariatePatterns(ld, cats)
+	if err != nil {
+		rec.NotComputed = err.Error()
+		return rec
+	}
 	ps, err := fit.PulkstenisRobinsonTest(ld.FitData, r, pattern, labels, categoricalColumns(ld.Design))
 	if err != nil {
 		rec.NotComputed = err.Error()
@@ -139,8 +144,10 @@ func patternSplit(ld *Loaded, r *fit.Result, sampling bool) *PatternSplitRecord 
 
 // covariatePatterns gives each row's combination of the levels of the
 // categorical sources cats (numbered in the order of the levels as
-// declared, first source slowest) and the label of each combination.
-func covariatePatterns(ld *Loaded, cats []int) ([]int, []string) {
+// declared, first source slowest) and the label of each combination. A
+// cell that is not the code of a declared level (a whole number from 0 to
+// the levels less one) is an error naming the row and the column.
+func covariatePatterns(ld *Loaded, cats []int) ([]int, []string, error) {
 	ds := ld.Data
 	keys := map[string][]int{}
 	rowKey := make([]string, ds.N)
@@ -148,7 +155,12 @@ func covariatePatterns(ld *Loaded, cats []int) ([]int, []string) {
 		lv := make([]int, len(cats))
 		parts := make([]string, len(cats))
 		for c, s := range cats {
-			lv[c] = int(ds.X[i*ds.K+s])
+			src := ld.Design.Sources[s]
+			x := ds.X[i*ds.K+s]
+			if !(x >= 0 && x < float64(len(src.Cat.Levels))) || x != math.Trunc(x) {
+				return nil, nil, fmt.Errorf("row %d of the data used holds %g in column %q, which is not the code of one of its %d levels (0 to %d)", i+1, x, src.Name, len(src.Cat.Levels), len(src.Cat.Levels)-1)
+			}
+			lv[c] = int(x)
 			parts[c] = fmt.Sprintf("%06d", lv[c])
 		}
 		rowKey[i] = strings.Join(parts, ",")
@@ -174,7 +186,7 @@ func covariatePatterns(ld *Loaded, cats []int) ([]int, []string) {
 	for i, k := range rowKey {
 		pattern[i] = index[k]
 	}
-	return pattern, labels
+	return pattern, labels, nil
 }
 
 // categoricalColumns lists the design columns made only of categorical

@@ -125,7 +125,10 @@ func PulkstenisRobinsonTest(d *Data, r *Result, pattern []int, labels []string, 
 		}
 	}
 	// Phase 4: the statistics and their degrees of freedom.
-	t.CategoricalParams = categoricalParams(r, categorical)
+	t.CategoricalParams, err = categoricalParams(r, categorical)
+	if err != nil {
+		return nil, err
+	}
 	var df int
 	if t.Split > 0 {
 		df = (t.Groups-1)*(J-1) - t.CategoricalParams - 1
@@ -134,14 +137,14 @@ func PulkstenisRobinsonTest(d *Data, r *Result, pattern []int, labels []string, 
 	}
 	x2, dev := 0.0, 0.0
 	undefined := ""
-	for g := range t.Observed {
+	for g := 0; g < len(t.Observed) && undefined == ""; g++ {
 		for j, o := range t.Observed[g] {
 			e := t.Expected[g][j]
 			if e < 0 || e == 0 && o > 0 {
 				// A negative probability (nonparallel fits) or an observed
 				// count where none is expected: the statistics would
 				// leave the cell out and come out too small.
-				undefined = fmt.Sprintf("not defined for this fit: group %d, category %s has expected count %g and observed count %g", g+1, r.Categories[j], e, o)
+				undefined = fmt.Sprintf("not defined for this fit: group %d, category %s has expected count %.4g and observed count %g", g+1, r.Categories[j], e, o)
 				break
 			}
 			if e == 0 {
@@ -200,10 +203,10 @@ func (t *PatternSplit) sparseCells() {
 // categoricalParams counts the parameters of r on the named design
 // columns (one per parallel or constrained column, one per equation for a
 // nonparallel one).
-func categoricalParams(r *Result, columns []string) int {
+func categoricalParams(r *Result, columns []string) (int, error) {
 	ly, err := newLayout(r.Model, r.J, r.Predictors)
 	if err != nil {
-		return 0
+		return 0, fmt.Errorf("the parameters of %s on the categorical columns cannot be counted: %w", r.Name, err)
 	}
 	in := map[string]bool{}
 	for _, c := range columns {
@@ -215,5 +218,5 @@ func categoricalParams(r *Result, columns []string) int {
 			k++
 		}
 	}
-	return k
+	return k, nil
 }

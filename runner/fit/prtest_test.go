@@ -9,6 +9,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"strconv"
+	"strings"
 	"testing"
 )
 
@@ -298,5 +299,71 @@ func TestPRCalibration(t *testing.T) {
 				t.Errorf("levels %v: rejection rate %.3f", s.levels, r)
 			}
 		}
+	}
+}
+
+// TestPRUndefinedCells: the tests are not defined, and say so with the
+// cell, when a group's expected count is negative (a nonparallel fit
+// whose cumulative probabilities cross) or when a category is observed in
+// a group where the fit expects none; they are never computed with the
+// cell left out. The fitted model's own estimates give ordinary tests; the
+// estimates are then set by hand (worked by hand: with the categorical
+// column's slopes -4 at boundary 1 and +4 at boundary 2, its rows have
+// L_1 = tau_1 + 4 > L_2 = tau_2 - 4, so P(y = 2) = F(L_2) - F(L_1) < 0;
+// with both slopes -1000, F(L_1) = F(L_2) = 1 to the last bit, so its rows
+// expect no count in categories 2 and 3).
+func TestPRUndefinedCells(t *testing.T) {
+	s := prScenario{levels: []int{2}, numeric: 1, tau: []float64{-0.5, 0.7}, catSlope: 0.5, numSlope: 0.8, n: 400, catEffect: Nonparallel}
+	d, pattern, labels, cat := s.draw(rand.New(rand.NewPCG(11, 18)))
+	r, err := Fit(d, s.model(d, cat), Options{})
+	if err != nil || !r.OK() {
+		t.Fatal(err)
+	}
+	ps, err := PulkstenisRobinsonTest(d, r, pattern, labels, cat)
+	if err != nil || !ps.Pearson.OK || !ps.Deviance.OK {
+		t.Fatalf("fitted estimates: %v %+v", err, ps)
+	}
+	set := func(b1, b2 float64) *Result {
+		q := *r
+		q.Estimates = append([]float64(nil), r.Estimates...)
+		for i, name := range r.ParamNames {
+			switch name {
+			case cat[0] + "[1]":
+				q.Estimates[i] = b1
+			case cat[0] + "[2]":
+				q.Estimates[i] = b2
+			}
+		}
+		return &q
+	}
+	for _, c := range []struct {
+		name   string
+		b1, b2 float64
+		want   string
+	}{
+		{"crossing", -4, 4, "category 2 has expected count -"},
+		{"none expected", -1000, -1000, "has expected count 0 and observed count "},
+	} {
+		ps, err := PulkstenisRobinsonTest(d, set(c.b1, c.b2), pattern, labels, cat)
+		if err != nil {
+			t.Fatalf("%s: %v", c.name, err)
+		}
+		for _, x := range []Test{ps.Pearson, ps.Deviance} {
+			if x.OK || !strings.Contains(x.Reason, "not defined for this fit: group ") || !strings.Contains(x.Reason, c.want) {
+				t.Errorf("%s: %s: ok %v, chi2 %g, reason %q; want not defined, %q", c.name, x.Name, x.OK, x.Chi2, x.Reason, c.want)
+			}
+		}
+		t.Logf("%s: %s", c.name, ps.Pearson.Reason)
+	}
+}
+
+// TestPRCategoricalParamsLayout: a result whose model does not match its
+// predictors gives an error, not k = 0 (which would raise the df).
+func TestPRCategoricalParamsLayout(t *testing.T) {
+	r := &Result{Name: "cumulative/parallel/logit", J: 3, Predictors: []string{"a", "b"},
+		Model: Model{Comparison: Cumulative, Link: Logit, Effects: []Effect{Parallel}}}
+	k, err := categoricalParams(r, []string{"a"})
+	if err == nil || !strings.Contains(err.Error(), "cannot be counted: model has 1 effect structures for 2 predictors") {
+		t.Errorf("k %d, err %v", k, err)
 	}
 }
