@@ -35,6 +35,16 @@ func pinKey(path string) string {
 	return filepath.Clean(path)
 }
 
+// pinnedBytes returns the bytes of a pinned path, if it is pinned.
+func pinnedBytes(path string) ([]byte, bool) {
+	pins.Lock()
+	defer pins.Unlock()
+	if p, ok := pins.m[pinKey(path)]; ok {
+		return p.raw, true
+	}
+	return nil, false
+}
+
 // Pin reads the file at path once and makes every reader of this package
 // use these bytes until the returned function is called. It returns the
 // bytes' hex SHA-256. Pins nest: the bytes of the first pin are kept until
@@ -82,11 +92,8 @@ func HashBytes(b []byte) string {
 // file when it is a regular file; anything else is an *Error saying what
 // the path is. The bytes are checked for a recognizable non-CSV format.
 func ReadFile(path string) ([]byte, error) {
-	pins.Lock()
-	p, ok := pins.m[pinKey(path)]
-	pins.Unlock()
-	if ok {
-		return p.raw, nil
+	if raw, ok := pinnedBytes(path); ok {
+		return raw, nil
 	}
 	if err := CheckRegular(path); err != nil {
 		return nil, err
@@ -111,11 +118,8 @@ func ReadFile(path string) ([]byte, error) {
 // file as read now, with the errors of openData; unlike ReadFile it does
 // not check the bytes (the reader checks the first ones).
 func fileBytes(path string) ([]byte, error) {
-	pins.Lock()
-	p, ok := pins.m[pinKey(path)]
-	pins.Unlock()
-	if ok {
-		return p.raw, nil
+	if raw, ok := pinnedBytes(path); ok {
+		return raw, nil
 	}
 	f, err := openData(path)
 	if err != nil {
@@ -137,11 +141,8 @@ func fileBytes(path string) ([]byte, error) {
 
 // openData opens a data file for reading (see ReadFile).
 func openData(path string) (io.ReadCloser, error) {
-	pins.Lock()
-	p, ok := pins.m[pinKey(path)]
-	pins.Unlock()
-	if ok {
-		return io.NopCloser(bytes.NewReader(p.raw)), nil
+	if raw, ok := pinnedBytes(path); ok {
+		return io.NopCloser(bytes.NewReader(raw)), nil
 	}
 	if err := CheckRegular(path); err != nil {
 		return nil, err
