@@ -238,12 +238,10 @@ func gridCells(K int) []cell {
 // core as a plan's grid runs (the grid's wall and CPU seconds).
 func gridTimes(d *fit.Data, K int) (slowest, slowestCPU float64, name string, grid, gridCPU float64) {
 	all := gridCells(K)
-	for _, c := range all {
-		c0 := cpuSeconds()
-		t0 := time.Now()
-		fit.Fit(d, c.m, fit.Options{Workers: runtime.GOMAXPROCS(0)})
-		if s := time.Since(t0).Seconds(); s > slowest {
-			slowest, slowestCPU, name = s, cpuSeconds()-c0, c.name
+	wall, cpu := fitOneByOne(d, all, runtime.GOMAXPROCS(0))
+	for i, s := range wall {
+		if s > slowest {
+			slowest, slowestCPU, name = s, cpu[i], all[i].name
 		}
 	}
 	c0 := cpuSeconds()
