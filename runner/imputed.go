@@ -244,7 +244,7 @@ func poolResults(rs []*fit.Result) (*fit.Result, *impute.Pooled, error) {
 		sets[k] = impute.Set{Est: r.Estimates, Cov: r.Cov}
 	}
 	first := rs[0]
-	pl, err := impute.Pool(sets, completeDF(first))
+	pl, err := impute.Pool(sets, completeDF(first.NObs, first.NParams))
 	if err != nil {
 		return nil, nil, err
 	}

@@ -69,7 +69,7 @@ func TestPooledPredictionsAgainstMice(t *testing.T) {
 		}
 	}
 	vals := rscript.Run(t, dir, "testdata/rcheck/predpool.R")
-	pooled, df, err := poolPredictions(preds, completeDF(first))
+	pooled, df, err := poolPredictions(preds, completeDF(first.NObs, first.NParams))
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -22,10 +22,11 @@ type PredictionDF struct {
 	Prob, Cum, Expected, Linear []float64
 }
 
-// completeDF is the complete-data degrees of freedom of a fit: its
-// observations less its parameters (+Inf when that is not positive).
-func completeDF(r *fit.Result) float64 {
-	dfc := r.NObs - float64(r.NParams)
+// completeDF is the complete-data degrees of freedom of Rubin's rules:
+// nobs observations less params parameters (+Inf when that is not
+// positive).
+func completeDF(nobs float64, params int) float64 {
+	dfc := nobs - float64(params)
 	if !(dfc > 0) {
 		return math.Inf(1)
 	}
@@ -66,7 +67,7 @@ func runPooledInference(an *Analysis, or *OutcomeResult) error {
 	fits, ferr := or.chosenPerSet()
 	var dfc float64
 	if ferr == nil {
-		dfc = completeDF(fits[0])
+		dfc = completeDF(fits[0].NObs, fits[0].NParams)
 	}
 	for _, kind := range inf.MarginalEffects {
 		if ferr != nil {

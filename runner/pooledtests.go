@@ -91,18 +91,9 @@ func newPooledBrant(or *OutcomeResult, fopt fit.Options) *pooledBrant {
 	for _, d := range or.Imputed.Sets {
 		pb.per = append(pb.per, fit.Brant(d, fopt))
 	}
+	// The binary logits' parameters: J-1 intercepts and slopes.
 	d := or.Imputed.Sets[0]
-	n := float64(d.N())
-	if d.Weights != nil {
-		n = 0
-		for _, w := range d.Weights {
-			n += w
-		}
-	}
-	pb.dfc = n - float64((d.J-1)*(len(d.Predictors)+1))
-	if !(pb.dfc > 0) {
-		pb.dfc = math.Inf(1)
-	}
+	pb.dfc = completeDF(d.NObs(), (d.J-1)*(len(d.Predictors)+1))
 	return pb
 }
 

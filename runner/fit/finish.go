@@ -40,7 +40,7 @@ type source struct {
 // localSource is the source of a fit of the rows of d, evaluated by pr.
 func localSource(d *Data, pr *problem) *source {
 	return &source{
-		predictors: d.Predictors, categories: d.categories(), J: d.J, nobs: d.nobs(), nrows: d.N(),
+		predictors: d.Predictors, categories: d.categories(), J: d.J, nobs: d.NObs(), nrows: d.N(),
 		fitted: func(theta []float64) (float64, int, error) {
 			minP, neg := pr.fittedCheck(theta)
 			return minP, neg, nil

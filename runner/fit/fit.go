@@ -152,7 +152,7 @@ func Fit(d *Data, m Model, opt Options) (*Result, error) {
 	if err != nil {
 		return nil, &InputError{err.Error()}
 	}
-	nobs := d.nobs()
+	nobs := d.NObs()
 	if float64(len(ly.params)) > nobs {
 		return nil, inputErr("model %s has %d parameters but only %g observations", m.Name(), len(ly.params), nobs)
 	}
@@ -187,7 +187,9 @@ func (d *Data) weight(i int) float64 {
 	return d.Weights[i]
 }
 
-func (d *Data) nobs() float64 {
+// NObs is the number of observations: the rows, or the sum of the
+// frequency weights.
+func (d *Data) NObs() float64 {
 	if d.Weights == nil {
 		return float64(len(d.Y))
 	}

@@ -56,7 +56,7 @@ func GroupByScore(d *Data, r *Result, groups int) (*ScoreGroups, error) {
 	}
 	n, J := d.N(), d.J
 	if groups <= 0 {
-		groups = DefaultScoreGroups(d.nobs(), J)
+		groups = DefaultScoreGroups(d.NObs(), J)
 	}
 	w := d.weightOf
 	// Phase 1: scores and probabilities.

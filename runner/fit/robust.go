@@ -154,7 +154,7 @@ func sandwich(d *Data, r *Result, clusters []string, probability, factor bool) (
 	if probability {
 		N = float64(d.N())
 	} else {
-		N = d.nobs()
+		N = d.NObs()
 	}
 	switch info.Type {
 	case Clustered:
