@@ -27,6 +27,7 @@ func main() {
 	childMode := flag.String("ingest-mode", "load", "(internal) the reader of -ingest-child: load or stream")
 	childDelim := flag.String("ingest-delim", "", "(internal) the delimiter of -ingest-child")
 	childComma := flag.Bool("ingest-decimal-comma", false, "(internal) -ingest-child has a decimal comma")
+	ingestWrite := flag.String("ingest-write", "", "write the files of -only ingest into this folder and stop (for profiling a reading: bench -ingest-child FILE)")
 	speedRows := flag.Int("targets-rows", 1_000_000, "rows of the data of -only targets")
 	speedGrid := flag.Int("targets-grid-rows", 1_000_000, "rows of the data of the grid in -only targets")
 	speedRepeats := flag.Int("targets-repeats", 3, "runs of each timing of -only targets (best and median reported)")
@@ -35,6 +36,13 @@ func main() {
 	flag.Parse()
 	if *memChild != "" {
 		runMemoryChild(*memChild, *memRows)
+		return
+	}
+	if *ingestWrite != "" {
+		if _, err := writeIngestFiles(*ingestWrite, *ingestRows, 10); err != nil {
+			fmt.Fprintln(os.Stderr, "bench:", err)
+			os.Exit(1)
+		}
 		return
 	}
 	if *child != "" {

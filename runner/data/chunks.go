@@ -44,6 +44,7 @@ type chunk struct {
 	lo, hi int  // bytes of the file
 	line   int  // file line of its first line
 	lines  int  // its lines (a bound on its records)
+	ends   int  // its line feeds
 	quotes bool // it has a quote character
 	row0   int  // its first row slot in the arrays
 	d      *Dataset
@@ -92,7 +93,8 @@ func (r *reader) chunked(raw []byte, body int) (d *Dataset, done bool, err error
 	forEach(len(chunks), func(i int) {
 		c := &chunks[i]
 		b := raw[c.lo:c.hi]
-		c.lines = bytes.Count(b, []byte{'\n'})
+		c.ends = bytes.Count(b, []byte{'\n'})
+		c.lines = c.ends
 		if len(b) > 0 && b[len(b)-1] != '\n' {
 			c.lines++
 		}
@@ -106,7 +108,7 @@ func (r *reader) chunked(raw []byte, body int) (d *Dataset, done bool, err error
 	line, rows := 1+bytes.Count(raw[:body], []byte{'\n'}), 0
 	for i := range chunks {
 		chunks[i].line, chunks[i].row0 = line, rows
-		line += bytes.Count(raw[chunks[i].lo:chunks[i].hi], []byte{'\n'})
+		line += chunks[i].ends
 		rows += chunks[i].lines
 	}
 	out := r.newDataset()

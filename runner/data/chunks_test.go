@@ -256,7 +256,8 @@ func TestDecimalMatchesParseFloat(t *testing.T) {
 		"9007199254740992", "9007199254740993", "9007199254740992e3", "123456789012345678", "1234567890123456789",
 		"12345678901234567890", "0.1", "0.2", "0.3", "2.2250738585072014e-308", "4.9e-324", "1e-400", "1.7976931348623157e308",
 		"1e309", "0e999", "-0e-999", "00000000000000000000001.5", "1.000000000000000000000001", ".", "e5", "1e", "1e+", "+", "-",
-		"1..2", "1.2.3", "--1", "1_0", "inf", "NaN", "0x10", "1,5", " 1", "1 ", "١"} {
+		"1..2", "1.2.3", "--1", "1_0", "inf", "NaN", "0x10", "1,5", " 1", "1 ", "١",
+		"1." + strings.Repeat("0", 70) + "1", "-0.000000000000000000000000000000000000000000000000000000000000123456", "12345678901234567890.5e-3"} {
 		check(s)
 	}
 	for i := 0; i < 200000; i++ {
@@ -283,12 +284,16 @@ func TestDecimalMatchesParseFloat(t *testing.T) {
 // many; a missing outcome kept for imputation (-1) stays so.
 func TestCodeCategories(t *testing.T) {
 	rng := rand.New(rand.NewPCG(3, 3))
-	for _, distinct := range []int{1, 5, 255, 256, 257, 1000} {
+	for _, distinct := range []int{1, 5, 255, 256, 257, 1000, -5, -1000} {
+		step := 7
+		if distinct < 0 { // codes too far apart for the table: sorted instead
+			distinct, step = -distinct, 123456789
+		}
 		codes := make([]int64, 3000)
 		y := make([]int, len(codes))
 		var seen []int64
 		for i := range codes {
-			codes[i] = int64(rng.IntN(distinct)*7 - 50)
+			codes[i] = int64(rng.IntN(distinct)*step - 50)
 			if rng.IntN(10) == 0 {
 				y[i] = -1
 			} else {

@@ -4,6 +4,7 @@ import (
 	"math"
 	"strconv"
 	"strings"
+	"unsafe"
 )
 
 // pow10 are the powers of ten a float64 holds exactly.
@@ -22,49 +23,38 @@ var pow10 = [...]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10,
 // integer of at most 2^53 and the power of ten is at most 22 in size, both
 // operands are exact and one multiplication or division rounds once,
 // correctly (Clinger's fast path); otherwise strconv.ParseFloat reads s.
-// Nothing is allocated but for a long number with a decimal comma.
+// Nothing is allocated but for a number of more than 64 bytes with a
+// decimal comma.
 func decimal(s string, mark byte) (float64, bool) {
-	n, ok := scanDecimal(s, 0, mark)
-	if !ok || n.end != len(s) {
-		return 0, false
-	}
-	return n.value(s, mark)
-}
-
-// scanned is a plain decimal number found in a text by scanDecimal.
-type scanned struct {
-	mant uint64 // its digits as an integer, when there are at most 19
-	sig  int    // its digits (leading zeros included)
-	exp  int    // its power of ten
-	neg  bool
-	end  int // where it ends in the text
+	v, end, ok := scanDecimal(s, 0, mark)
+	return v, ok && end == len(s)
 }
 
 // scanDecimal reads the plain decimal number that starts at s[i] (see
-// decimal), stopping at the first byte that cannot continue it; false
-// when there is none there.
-func scanDecimal(s string, i int, mark byte) (scanned, bool) {
-	var n scanned
+// decimal), stopping at the first byte that cannot continue it, and
+// returns its value and where it ends; false when there is no number
+// there, or it is beyond float64's range. Every piece of state is a local
+// variable, so that the loops over the digits stay in registers (this is
+// the reader's innermost loop).
+func scanDecimal(s string, i int, mark byte) (v float64, end int, ok bool) {
+	start := i
+	neg := false
 	if i < len(s) && (s[i] == '+' || s[i] == '-') {
-		n.neg = s[i] == '-'
+		neg = s[i] == '-'
 		i++
 	}
-	start := i
-	for ; i < len(s) && s[i]-'0' <= 9; i++ {
-		n.mant = n.mant*10 + uint64(s[i]-'0')
-	}
-	n.sig = i - start
+	d0 := i
+	mant, i := digits(s, i, 0)
+	sig, exp := i-d0, 0
 	if i < len(s) && s[i] == mark {
 		i++
-		frac := i
-		for ; i < len(s) && s[i]-'0' <= 9; i++ {
-			n.mant = n.mant*10 + uint64(s[i]-'0')
-		}
-		n.exp = frac - i
-		n.sig += i - frac
+		f0 := i
+		mant, i = digits(s, i, mant)
+		exp = f0 - i
+		sig += i - f0
 	}
-	if n.sig == 0 {
-		return n, false
+	if sig == 0 {
+		return 0, i, false
 	}
 	if i < len(s) && s[i]|0x20 == 'e' {
 		i++
@@ -73,48 +63,74 @@ func scanDecimal(s string, i int, mark byte) (scanned, bool) {
 			eneg = s[i] == '-'
 			i++
 		}
-		start, e := i, 0
+		e0, e := i, 0
 		for ; i < len(s) && s[i]-'0' <= 9; i++ {
 			if e < 1e6 {
 				e = e*10 + int(s[i]-'0')
 			}
 		}
-		if i == start {
-			return n, false
+		if i == e0 {
+			return 0, i, false
 		}
 		if eneg {
 			e = -e
 		}
-		n.exp += e
+		exp += e
 	}
-	n.end = i
-	return n, true
+	if sig <= 19 {
+		if mant == 0 {
+			if neg {
+				return math.Copysign(0, -1), i, true
+			}
+			return 0, i, true
+		}
+		if mant <= 1<<53 && exp >= -22 && exp <= 22 {
+			v = float64(mant)
+			if exp >= 0 {
+				v *= pow10[exp]
+			} else {
+				v /= pow10[-exp]
+			}
+			if neg {
+				v = -v
+			}
+			return v, i, true
+		}
+	}
+	v, ok = slowDecimal(s[start:i], mark)
+	return v, i, ok
 }
 
-// value is the number's float64, from its digits when that is exact, else
-// by strconv.ParseFloat of its text (the whole of text); false when it is
-// beyond float64's range.
-func (n scanned) value(text string, mark byte) (float64, bool) {
-	if n.mant == 0 && n.sig <= 19 {
-		if n.neg {
-			return math.Copysign(0, -1), true
+// digits reads the run of decimal digits at s[i:] onto mant (mant*10 +
+// digit for each; it wraps beyond 19 digits, which the caller does not
+// use) and returns the new mant and where the run ends. (Reading eight
+// bytes at a time with word operations was tried: on the short numbers of
+// data files it is slower than this loop, whose branches predict well.)
+func digits(s string, i int, mant uint64) (uint64, int) {
+	for ; i < len(s); i++ {
+		c := s[i] - '0'
+		if c > 9 {
+			break
 		}
-		return 0, true
+		mant = mant*10 + uint64(c)
 	}
-	if n.sig <= 19 && n.mant <= 1<<53 && n.exp >= -22 && n.exp <= 22 {
-		v := float64(n.mant)
-		if n.exp >= 0 {
-			v *= pow10[n.exp]
-		} else {
-			v /= pow10[-n.exp]
-		}
-		if n.neg {
-			v = -v
-		}
-		return v, true
-	}
+	return mant, i
+}
+
+// slowDecimal is strconv.ParseFloat of a plain decimal number (with a
+// decimal comma read as a point); false beyond float64's range.
+func slowDecimal(text string, mark byte) (float64, bool) {
 	if mark != '.' {
-		text = strings.Replace(text, string(mark), ".", 1)
+		var buf [64]byte
+		if len(text) <= len(buf) {
+			n := copy(buf[:], text)
+			if j := strings.IndexByte(text, mark); j >= 0 {
+				buf[j] = '.'
+			}
+			text = unsafe.String(&buf[0], n)
+		} else {
+			text = strings.Replace(text, string(mark), ".", 1)
+		}
 	}
 	v, err := strconv.ParseFloat(text, 64)
 	if err != nil || math.IsInf(v, 0) {

@@ -108,6 +108,7 @@ func (p *fastPlan) valid(f *fastField, cell string) bool {
 func (r *reader) fastRow(p *fastPlan, t *rowTally, line string) (cells, bool) {
 	row := cells{miss: -1, w: 1}
 	last := len(p.fields) - 1
+	hi := len(line)
 	i := 0 // start of the current field
 	for fi := range p.fields {
 		f := &p.fields[fi]
@@ -118,16 +119,16 @@ func (r *reader) fastRow(p *fastPlan, t *rowTally, line string) (cells, bool) {
 		switch f.kind {
 		case fastNumber, fastWeight, fastOffset:
 			i = p.skipSpace(line, i)
-			n, found := scanDecimal(line, i, p.mark)
-			end = p.skipSpace(line, n.end)
-			if !found || end < len(line) && line[end] != p.delim {
+			var e int
+			v, e, ok = scanDecimal(line, i, p.mark)
+			end = p.skipSpace(line, e)
+			if !ok || end < hi && line[end] != p.delim {
 				return row, false
 			}
-			cell = line[i:n.end]
-			v, ok = n.value(cell, p.mark)
+			cell = line[i:e]
 		default:
 			if end = strings.IndexByte(line[i:], p.delim); end < 0 {
-				end = len(line)
+				end = hi
 			} else {
 				end += i
 			}
@@ -138,7 +139,7 @@ func (r *reader) fastRow(p *fastPlan, t *rowTally, line string) (cells, bool) {
 				}
 			}
 		}
-		if (fi == last) != (end == len(line)) {
+		if (fi == last) != (end == hi) {
 			return row, false // not as many fields as the header
 		}
 		i = end + 1

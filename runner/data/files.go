@@ -9,6 +9,7 @@ import (
 	"os"
 	"path/filepath"
 	"sync"
+	"sync/atomic"
 )
 
 // Data files are read whole, from regular files only: a named pipe or a
@@ -132,11 +133,45 @@ func fileBytes(path string) ([]byte, error) {
 			size = fi.Size()
 		}
 	}
+	if of, ok := f.(*os.File); ok && size >= 2*readBlock {
+		if raw, ok := readBlocks(of, size); ok {
+			return raw, nil
+		}
+		if _, err := of.Seek(0, io.SeekStart); err != nil {
+			return nil, &Error{File: path, Msg: "cannot read file: " + osReason(err), Err: err}
+		}
+	}
 	buf := bytes.NewBuffer(make([]byte, 0, size+bytes.MinRead))
 	if _, err := buf.ReadFrom(f); err != nil {
 		return nil, &Error{File: path, Msg: "cannot read file: " + osReason(err), Err: err}
 	}
 	return buf.Bytes(), nil
+}
+
+// readBlock is the size of the pieces readBlocks reads.
+const readBlock = 4 << 20
+
+// readBlocks reads a large file of the given size in pieces on the
+// workers (the copying out of the page cache, and the first touch of the
+// new memory, are then shared), once: each piece goes straight into its
+// place. False when the file turned out not to be of that size (it
+// changed while read) or a piece failed: the caller then reads it from the
+// start, in one stream, and reports any error.
+func readBlocks(f *os.File, size int64) ([]byte, bool) {
+	raw := make([]byte, size)
+	n := int((size + readBlock - 1) / readBlock)
+	var bad atomic.Bool
+	forEach(n, func(i int) {
+		lo := int64(i) * readBlock
+		if _, err := f.ReadAt(raw[lo:min(lo+readBlock, size)], lo); err != nil {
+			bad.Store(true)
+		}
+	})
+	var one [1]byte
+	if k, _ := f.ReadAt(one[:], size); k != 0 || bad.Load() {
+		return nil, false
+	}
+	return raw, true
 }
 
 // openData opens a data file for reading (see ReadFile).

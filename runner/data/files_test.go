@@ -127,3 +127,26 @@ func TestPinnedBytes(t *testing.T) {
 		t.Fatal("unpinned, the file is not read again")
 	}
 }
+
+// A large file is read in pieces on the workers: the bytes are the file's,
+// whatever the size (a piece boundary, one byte more or less).
+func TestFileBytesInPieces(t *testing.T) {
+	dir := t.TempDir()
+	for _, size := range []int{2 * readBlock, 2*readBlock + 1, 3*readBlock - 1, 2*readBlock + 12345} {
+		want := make([]byte, size)
+		for i := range want {
+			want[i] = byte(i*7 + i/4093)
+		}
+		path := filepath.Join(dir, "big.csv")
+		if err := os.WriteFile(path, want, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		got, err := fileBytes(path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !bytes.Equal(got, want) {
+			t.Fatalf("size %d: the bytes read differ from the file's", size)
+		}
+	}
+}

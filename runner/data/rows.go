@@ -400,7 +400,8 @@ func (t *MissingTable) byCategory(cols []usedCol, d *Dataset, catMiss map[string
 	}
 	kept := make([]int, len(d.Categories))
 	for i, y := range d.Y {
-		if y >= 0 && !slices.ContainsFunc(d.X[i*d.K:(i+1)*d.K], math.IsNaN) {
+		// Without kept incomplete rows every row is complete: no NaN to look for.
+		if y >= 0 && (d.Incomplete == 0 || !slices.ContainsFunc(d.X[i*d.K:(i+1)*d.K], math.IsNaN)) {
 			kept[y]++
 		}
 	}
@@ -435,33 +436,53 @@ func (t *MissingTable) byCategory(cols []usedCol, d *Dataset, catMiss map[string
 
 // codeCategories sets y to the index of each code among the distinct codes,
 // sorted numerically, and returns their decimal labels; rows whose y is -1
-// (a missing outcome kept for imputation) keep it. The distinct codes are
-// gathered in one pass into a short sorted list (an outcome has few), and
-// sorted from all codes only when they are many.
+// (a missing outcome kept for imputation) keep it. Codes within a span of
+// codeSpan (the usual case: an outcome has few categories, coded by small
+// integers) are looked up in a table indexed by the code, the rows in
+// blocks on the workers; others are sorted.
 func codeCategories(codes []int64, y []int) []string {
-	var distinct []int64
-	for i, c := range codes {
-		if y[i] < 0 {
-			continue
-		}
-		if at, found := slices.BinarySearch(distinct, c); !found {
-			if len(distinct) == 256 {
-				distinct = distinct[:0]
-				for i, c := range codes {
-					if y[i] >= 0 {
-						distinct = append(distinct, c)
-					}
-				}
-				slices.Sort(distinct)
-				distinct = slices.Compact(distinct)
-				break
-			}
-			distinct = slices.Insert(distinct, at, c)
-		}
-	}
+	lo, hi, any := int64(math.MaxInt64), int64(math.MinInt64), false
 	for i, c := range codes {
 		if y[i] >= 0 {
-			y[i], _ = slices.BinarySearch(distinct, c)
+			lo, hi, any = min(lo, c), max(hi, c), true
+		}
+	}
+	var distinct []int64
+	switch {
+	case !any:
+	case uint64(hi-lo) < codeSpan:
+		seen := make([]int, hi-lo+1) // code - lo -> its index + 1, once seen
+		for i, c := range codes {
+			if y[i] >= 0 {
+				seen[c-lo] = 1
+			}
+		}
+		for j, s := range seen {
+			if s != 0 {
+				distinct = append(distinct, lo+int64(j))
+				seen[j] = len(distinct)
+			}
+		}
+		const block = 1 << 16
+		forEach((len(codes)+block-1)/block, func(b int) {
+			for i := b * block; i < min(len(codes), (b+1)*block); i++ {
+				if y[i] >= 0 {
+					y[i] = seen[codes[i]-lo] - 1
+				}
+			}
+		})
+	default:
+		for i, c := range codes {
+			if y[i] >= 0 {
+				distinct = append(distinct, c)
+			}
+		}
+		slices.Sort(distinct)
+		distinct = slices.Compact(distinct)
+		for i, c := range codes {
+			if y[i] >= 0 {
+				y[i], _ = slices.BinarySearch(distinct, c)
+			}
 		}
 	}
 	labels := make([]string, len(distinct))
@@ -470,6 +491,9 @@ func codeCategories(codes []int64, y []int) []string {
 	}
 	return labels
 }
+
+// codeSpan is the largest span of outcome codes looked up in a table.
+const codeSpan = 1 << 16
 
 // tally counts the kept rows per category and checks that at least two
 // categories are present.
