@@ -3,6 +3,7 @@ package runner
 import (
 	"bytes"
 	"encoding/gob"
+	"strings"
 	"testing"
 
 	"ordplan/runner/fit"
@@ -48,5 +49,29 @@ func TestExecutorGivesSameDecisions(t *testing.T) {
 	remote, _ := MarshalStable(BuildDecisions(r))
 	if !bytes.Equal(local, remote) {
 		t.Fatal("decisions differ when the fits run through the executor")
+	}
+}
+
+// silentExecutor answers every job with neither a result nor an error.
+type silentExecutor struct{}
+
+func (silentExecutor) Execute(jobs []Job) ([]*fit.Result, []error) {
+	return make([]*fit.Result, len(jobs)), make([]error, len(jobs))
+}
+
+// A job that comes back with neither a result nor an error is an error of
+// its fit, with or without a sandwich step, never a panic or an empty fit.
+func TestExecutorWithoutAnswer(t *testing.T) {
+	d := &fit.Data{J: 2, Y: []int{0, 1, 0, 1}, X: []float64{0, 0, 1, 1}, Predictors: []string{"x"}}
+	for _, sandwich := range []func(*fit.Result) error{nil, func(*fit.Result) error { return nil }} {
+		e := &FitEntry{ID: "cumulative/parallel/logit"}
+		err := fitGrid([]*FitEntry{e}, gridTarget{label: "y", data: d, sandwich: sandwich, remote: &remoteData{outcome: "y"}},
+			Options{Executor: silentExecutor{}, Workers: 1})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if e.Result != nil || !strings.Contains(e.Err, "no result and no error came back for this fit") {
+			t.Fatalf("entry: result %v, error %q", e.Result, e.Err)
+		}
 	}
 }

@@ -1,6 +1,7 @@
 package runner
 
 import (
+	"errors"
 	"fmt"
 	"sync"
 
@@ -44,8 +45,12 @@ func fitGrid(entries []*FitEntry, t gridTarget, opt Options) error {
 }
 
 // settle stores a fit's result and error in its entry, after the sandwich
-// step of a usable fit.
+// step of a usable fit. Neither a result nor an error (a faulty executor)
+// is an error of the entry.
 func (e *FitEntry) settle(res *fit.Result, err error, sandwich func(*fit.Result) error) {
+	if res == nil && err == nil {
+		err = errors.New("no result and no error came back for this fit (the executor lost it)")
+	}
 	e.Result = res
 	if err == nil && sandwich != nil && res.OK() {
 		err = sandwich(res)
