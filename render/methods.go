@@ -148,7 +148,7 @@ func writeMethods(d *doc, r *runner.Result) {
 			}
 			s = append(s, fmt.Sprintf("The parallel-lines assumption was tested by %s tests (alpha = %g), overall and for each predictor.", joinAnd(tests), p.Tests.Alpha))
 		}
-		cov := r.Errors().Covariance.Phrase()
+		cov := r.Analysis.Errors.Covariance.Phrase()
 		if strings.Contains(cov, "sandwich") {
 			cov += " " + c.cite("white")
 		}

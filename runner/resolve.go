@@ -118,14 +118,6 @@ func (c CovariancePolicy) Sandwich(ds *data.Dataset, d *fit.Data) func(*fit.Resu
 	}
 }
 
-// Errors is the covariance policy the run's fits followed.
-func (r *Result) Errors() CovariancePolicy {
-	if r.Analysis == nil {
-		return ResolvePlan(r.Plan).Errors
-	}
-	return r.Analysis.Errors
-}
-
 // ResolvePlan resolves a validated plan.
 func ResolvePlan(p *plan.Plan) *Analysis {
 	a := &Analysis{Source: p.Path, Plan: true, DataFile: p.Data.Name(), DataPath: p.Data.Path,

@@ -34,7 +34,7 @@ type Result struct {
 	// Simulated is set when the data were simulated (ordplan rehearse).
 	Simulated *Simulation
 	// Analysis is the plan resolved: how the data were read, the fit
-	// options and the covariance policy.
+	// options and the covariance policy (set by Run, which resolves once).
 	Analysis *Analysis `json:"-"`
 }
 
