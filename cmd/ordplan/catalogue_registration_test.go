@@ -124,6 +124,13 @@ func registrationItems() []badInput {
 		{id: "A13", name: "a direction for a generating model that is not stage", args: []string{"check", "--no-data"}, code: 1, lines: true,
 			plan: goodPlan + assumed("{a: 0.2}", "  direction: backward\n"),
 			want: []string{`assumptions.direction: the direction applies to the stage comparison only (assumptions.comparison is "cumulative")`}},
+		{id: "A14", name: "a subset that keeps almost none of the simulated rows", args: []string{"rehearse"}, code: 1,
+			plan: edit("predictors:", "subset:\n  - {column: a, at_least: 5}\npredictors:") + assumed("{a: 0.2}", ""),
+			want: []string{`A14.yaml: subset: the plan's subset (a >= 5) keeps 1 of the 2000000 rows drawn from the assumptions (under 5%): the stated proportions cannot be set on the rows it keeps`}},
+		{id: "A15", name: "an effect for a level the simulated rows lack", args: []string{"rehearse"}, code: 1,
+			plan: edit("predictors:", "subset:\n  - {column: b, none_of: [w]}\npredictors:") + "categorical:\n  b: {levels: [u, v, w], unobserved: drop}\n" +
+				strings.Replace(assumed("{b: {v: 0.3, w: 0.5}}", ""), "b: {mean: 0, sd: 1}", "b: {proportions: [0.3, 0.3, 0.4]}", 1),
+			want: []string{`assumptions.outcomes.y.effects.b.w: level "w" of b occurs in no simulated row the subset keeps, so the design drops its column (unobserved: drop) and its effect cannot be simulated`}},
 		{id: "R5", name: "ordplan init over an existing file", args: []string{"init", "--header", "y,a"}, plan: goodPlan, code: 1,
 			want: []string{"init: R5.yaml already exists; ordplan init never overwrites a file"},
 			check: func(t *testing.T, dir, out, errs string) {

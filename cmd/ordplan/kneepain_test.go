@@ -55,7 +55,8 @@ func TestRegisteredExampleBeforeData(t *testing.T) {
 // A rehearsal of a plan with a subset on a column that is not a
 // predictor: the column is simulated, the reader applies the condition,
 // and the report says how many simulated rows it kept (in the opening
-// lines and in the methods paragraph). The stage generating model is
+// lines and in the methods paragraph), and that the stated proportions
+// describe the rows it keeps. The stage generating model is
 // named, with its stated correlation accepted.
 func TestRehearseWithSubset(t *testing.T) {
 	src, err := os.ReadFile(filepath.Join("..", "..", "plans", "kneepain.yaml"))
@@ -77,7 +78,7 @@ func TestRehearseWithSubset(t *testing.T) {
 	}
 	md, _ := os.ReadFile(filepath.Join(dir, "r", "report.md"))
 	for _, want := range []string{"with a stage (forward) logit model generating each outcome", "The plan's subset (baseline_pain >= 3) kept ",
-		" of the 300 simulated rows", "met the plan's subset conditions (baseline_pain >= 3); of these, "} {
+		" of the 300 simulated rows. The stated category proportions describe the rows the subset keeps, the population the plan analyses", "met the plan's subset conditions (baseline_pain >= 3); of these, "} {
 		if !strings.Contains(string(md), want) {
 			t.Errorf("report.md lacks %q", want)
 		}

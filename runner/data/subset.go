@@ -65,3 +65,12 @@ func (c Condition) keeps(cell string, missing bool, d Dialect) (bool, string) {
 	}
 	return false, "unknown comparison " + strconv.Quote(c.Op)
 }
+
+// Keeps reports whether a cell written with a decimal point (as the
+// simulated files of ordplan rehearse and power write it) meets the
+// condition, as the reader would decide; a cell that is not a number
+// fails a comparison of numbers.
+func (c Condition) Keeps(cell string) bool {
+	ok, _ := c.keeps(cell, false, Dialect{})
+	return ok
+}

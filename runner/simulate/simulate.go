@@ -12,13 +12,20 @@ import (
 
 	"ordplan/plan"
 	"ordplan/runner"
+	"ordplan/runner/data"
 	"ordplan/runner/design"
 	"ordplan/runner/fit"
 )
 
 // CalibrationRows is the size of the predictor sample the cutpoints are
-// solved on (and the design constants frozen on).
+// solved on (and the design constants frozen on): rows drawn from the
+// assumptions that the plan's subset keeps.
 const CalibrationRows = 100_000
+
+// maxCalibrationDraws bounds the rows drawn to find CalibrationRows that
+// the subset keeps: a subset that keeps under 5% of the drawn rows is
+// refused (its simulated data sets would keep under 5% of their rows).
+const maxCalibrationDraws = 20 * CalibrationRows
 
 // Predictor is how one raw column is drawn.
 type Predictor struct {
@@ -59,10 +66,13 @@ type Sim struct {
 	// copula, chol the lower Cholesky factor of their correlation matrix.
 	Correlated []int
 	chol       []float64
-	Weights    string // columns written with constant values
-	Offset     string
-	Cluster    string
-	seed       uint64
+	// Keep is the plan's subset; keepCol[i] the predictor Keep[i] reads.
+	Keep    []data.Condition
+	keepCol []int
+	Weights string // columns written with constant values
+	Offset  string
+	Cluster string
+	seed    uint64
 }
 
 // New prepares the simulation of a plan with assumptions.
@@ -95,7 +105,17 @@ func New(p *plan.Plan) (*Sim, error) {
 	if err := s.correlate(a.Correlations); err != nil {
 		return nil, err
 	}
-	rows := s.calibrationSample()
+	for _, c := range p.Subset {
+		k := slices.IndexFunc(s.Predictors, func(pr Predictor) bool { return pr.Column == c.Column })
+		if k < 0 {
+			return nil, fmt.Errorf("%s: %s: column %q is not simulated", p.Path, c.Key, c.Column)
+		}
+		s.Keep, s.keepCol = append(s.Keep, c), append(s.keepCol, k)
+	}
+	rows, err := s.calibrationSample()
+	if err != nil {
+		return nil, err
+	}
 	for _, oc := range p.Outcomes {
 		o, err := s.outcome(oc, rows)
 		if err != nil {
@@ -254,10 +274,23 @@ func (s *Sim) termCoefficients(dz *design.Design, t *design.Term, e plan.Effect,
 		b[0] = e.Number
 		return b, nil
 	case e.Form == plan.EffectNamed && e.Levels == nil:
-		for name, x := range e.Named {
-			b[slices.Index(t.Columns, name)] = x
+		for _, name := range e.Order {
+			c := slices.Index(t.Columns, name)
+			if c < 0 {
+				// The plan's check knows every declared level; a level
+				// the simulated population lacks loses its columns.
+				return nil, fmt.Errorf("%s.%s: the design column %q is not made on the %s: %s", where, name, name, s.population(false), droppedLevels(dz))
+			}
+			b[c] = e.Named[name]
 		}
 		return b, nil
+	case e.Form == plan.EffectNamed:
+		for _, lv := range e.Order {
+			if !slices.Contains(t.Kept, lv) {
+				return nil, fmt.Errorf("%s.%s: level %q of %s occurs in no %s, so the design drops its column (unobserved: drop) and its effect cannot be simulated: remove the effect, or make the level occur (its proportion, the subset)",
+					where, lv, lv, dz.Sources[t.Source].Name, s.population(true))
+			}
+		}
 	}
 	// Levels and points: the term's columns at chosen raw values, solved
 	// with a constant (which the cutpoints absorb) for the stated values.
@@ -287,6 +320,34 @@ func (s *Sim) termCoefficients(dz *design.Design, t *design.Term, e plan.Effect,
 			where, numList(at), t.Name, C, strings.Join(t.Columns, ", "), knotText(t))
 	}
 	return sol[:C], nil
+}
+
+// population names the rows the design is built on: "simulated rows",
+// and with a subset "simulated rows the subset keeps" ("row" when one).
+func (s *Sim) population(one bool) string {
+	w := "simulated rows"
+	if one {
+		w = "simulated row"
+	}
+	if len(s.Keep) > 0 {
+		w += " the subset keeps"
+	}
+	return w
+}
+
+// droppedLevels names the levels the design dropped, as "level "east" of
+// site occurs in none of them".
+func droppedLevels(dz *design.Design) string {
+	var out []string
+	for _, t := range dz.Terms {
+		for _, lv := range t.Dropped {
+			out = append(out, fmt.Sprintf("level %q of %s", lv, dz.Sources[t.Source].Name))
+		}
+	}
+	if out == nil {
+		return "the design's columns differ from the plan's"
+	}
+	return strings.Join(out, ", ") + " occurs in none of them"
 }
 
 func knotText(t *design.Term) string {
@@ -546,15 +607,51 @@ func (s *Sim) correlate(cs []plan.Correlation) error {
 }
 
 // calibrationSample draws the seeded sample the design constants and the
-// cutpoints are set on.
-func (s *Sim) calibrationSample() []row {
+// cutpoints are set on: CalibrationRows rows that the plan's subset keeps,
+// so that the stated proportions describe the population the plan
+// analyses (all rows drawn, without a subset).
+func (s *Sim) calibrationSample() ([]row, error) {
 	rng := rand.New(rand.NewPCG(s.seed, 0xca11b4a7e))
-	rows := make([]row, CalibrationRows)
-	for i := range rows {
-		rows[i] = s.newRow()
-		s.drawRow(rng, &rows[i])
+	rows := make([]row, 0, CalibrationRows)
+	r := s.newRow()
+	drawn := 0
+	for len(rows) < CalibrationRows && drawn < maxCalibrationDraws {
+		s.drawRow(rng, &r)
+		drawn++
+		if s.inSubset(&r) {
+			rows = append(rows, r)
+			r = s.newRow()
+		}
 	}
-	return rows
+	if len(rows) < CalibrationRows {
+		conds := make([]string, len(s.Keep))
+		for i, c := range s.Keep {
+			conds[i] = c.String()
+		}
+		return nil, fmt.Errorf("%s: subset: the plan's subset (%s) keeps %d of the %d rows drawn from the assumptions (under 5%%): the stated proportions cannot be set on the rows it keeps, and simulated data would have almost none; check the subset against the assumptions and the dictionary",
+			s.Plan.Path, strings.Join(conds, "; "), len(rows), drawn)
+	}
+	return rows, nil
+}
+
+// value is the text of predictor k in a drawn row, as the simulated file
+// holds it (before CSV quoting).
+func (s *Sim) value(r *row, k int) string {
+	if r.level[k] >= 0 {
+		return s.Predictors[k].Values[r.level[k]]
+	}
+	return strconv.FormatFloat(r.x[k], 'g', 7, 64)
+}
+
+// inSubset reports whether the plan's subset keeps a drawn row, judged on
+// the values as the file holds them, as the reader judges them.
+func (s *Sim) inSubset(r *row) bool {
+	for i, c := range s.Keep {
+		if !c.Keeps(s.value(r, s.keepCol[i])) {
+			return false
+		}
+	}
+	return true
 }
 
 // calibrate solves the cutpoints so that the category proportions over the
@@ -822,6 +919,7 @@ func (s *Sim) Write(w io.Writer, n int, replicate uint64) error {
 	for i := 0; i < n; i++ {
 		s.drawRow(rng, &r)
 		cells = cells[:0]
+		kept := s.inSubset(&r)
 		for oi := range s.Outcomes {
 			o, c := &s.Outcomes[oi], &sc[oi]
 			o.raw(&r, c.raw)
@@ -833,15 +931,23 @@ func (s *Sim) Write(w io.Writer, n int, replicate uint64) error {
 				c.L[m] = o.Cut[m] - c.e[m]
 			}
 			fit.CategoryProbabilities(s.Comparison, s.Backward, s.Link, c.L, c.p)
+			valid := true
 			for j, pj := range c.p {
-				if pj < 0 {
+				if pj < 0 && kept {
 					// The calibration sample did not reach these predictor
 					// values; a row there must not get a category anyway.
 					return fmt.Errorf("%s: assumptions.outcomes.%s.nonparallel: simulated row %d gets a negative probability of category %s: the stated effects make neighbouring boundaries cross at its predictor values; make the effects at neighbouring boundaries closer or give the predictors a range",
 						s.Plan.Path, o.Column, i+1, o.Categories[j])
 				}
+				valid = valid && pj >= 0
 			}
 			u := rng.Float64()
+			if !valid {
+				// A row the subset leaves out is never analysed; where the
+				// model has no valid probabilities there it gets no category.
+				cells = append(cells, "")
+				continue
+			}
 			y, acc := len(c.p)-1, 0.0
 			for j := 0; j < len(c.p)-1; j++ {
 				acc += c.p[j]
@@ -852,12 +958,8 @@ func (s *Sim) Write(w io.Writer, n int, replicate uint64) error {
 			}
 			cells = append(cells, csvCell(o.Categories[y]))
 		}
-		for k, pr := range s.Predictors {
-			if r.level[k] >= 0 {
-				cells = append(cells, csvCell(pr.Values[r.level[k]]))
-			} else {
-				cells = append(cells, strconv.FormatFloat(r.x[k], 'g', 7, 64))
-			}
+		for k := range s.Predictors {
+			cells = append(cells, csvCell(s.value(&r, k)))
 		}
 		if s.Weights != "" {
 			cells = append(cells, "1")
