@@ -239,34 +239,31 @@ func run(w io.Writer, cfg config) {
 }
 
 // fitOneByOne fits every cell on d, one after another with workers each,
-// and returns each fit's wall and CPU seconds.
-func fitOneByOne(d *fit.Data, all []cell, workers int) (wall, cpu []float64) {
+// and returns each fit's wall and CPU seconds and passes over the data.
+func fitOneByOne(d *fit.Data, all []cell, workers int) (wall, cpu, passes []float64) {
 	for _, c := range all {
+		r0 := fit.RowsEvaluated()
 		c0 := cpuSeconds()
 		t0 := time.Now()
 		fit.Fit(d, c.m, fit.Options{Workers: workers})
 		wall = append(wall, time.Since(t0).Seconds())
 		cpu = append(cpu, cpuSeconds()-c0)
+		passes = append(passes, float64(fit.RowsEvaluated()-r0)/float64(d.N()))
 	}
-	return wall, cpu
+	return wall, cpu, passes
 }
 
-// fitAtOnce fits every cell on d, one fit per core (one worker each) as a
-// plan's grid runs, and returns the seconds it took.
+// fitAtOnce fits every cell on d through fit.FitGrid, as a plan's grid
+// runs (one fit per core, each over every core), and returns the seconds
+// it took.
 func fitAtOnce(d *fit.Data, all []cell) float64 {
-	t0 := time.Now()
-	var wg sync.WaitGroup
-	sem := make(chan struct{}, runtime.GOMAXPROCS(0))
-	for _, c := range all {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			sem <- struct{}{}
-			defer func() { <-sem }()
-			fit.Fit(d, c.m, fit.Options{Workers: 1})
-		}()
+	models := make([]fit.Model, len(all))
+	for i, c := range all {
+		models[i] = c.m
 	}
-	wg.Wait()
+	workers := runtime.GOMAXPROCS(0)
+	t0 := time.Now()
+	fit.FitGrid(d, models, fit.Options{Workers: workers}, workers, func(int, *fit.Result, error) {})
 	return time.Since(t0).Seconds()
 }
 
@@ -291,7 +288,7 @@ func slope(x, y []float64) float64 {
 func grid(w io.Writer, n, K, J int) {
 	d := generate(n, K, J, 7)
 	all := cells(K)
-	wall, _ := fitOneByOne(d, all, 1)
+	wall, _, _ := fitOneByOne(d, all, 1)
 	var serial float64
 	for _, s := range wall {
 		serial += s

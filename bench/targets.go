@@ -100,10 +100,11 @@ func targets(w io.Writer, n, gridN, repeats int) {
 	if gridN != n {
 		five = generate(gridN, K, 5, 42)
 	}
-	slowest, slowestCPU, slowName, grid, gridCPU := gridTimes(five, K)
+	g := gridTimes(five, K)
 	add(targetRow{fmt.Sprintf("the 13-model grid, n = %s, on %d cores / its slowest single fit (on %d cores)", count(gridN), runtime.GOMAXPROCS(0), runtime.GOMAXPROCS(0)),
-		fmt.Sprintf("%.2f (grid %.2f s, CPU %.2f s; slowest %s %.2f s, CPU %.2f s; CPU ratio %.2f)", grid/slowest, grid, gridCPU, slowName, slowest, slowestCPU, gridCPU/slowestCPU),
-		grid / slowest, gridLimit})
+		fmt.Sprintf("%.2f (grid %.2f s, CPU %.2f s, %.1f passes over the data (%.1f fitted one by one); slowest %s %.2f s, CPU %.2f s, %.1f passes; CPU ratio %.2f)",
+			g.grid/g.slowest, g.grid, g.gridCPU, g.gridPasses, g.singlePasses, g.name, g.slowest, g.slowestCPU, g.slowestPasses, g.gridCPU/g.slowestCPU),
+		g.grid / g.slowest, gridLimit})
 
 	for _, c := range []string{"binary", "cumulative/nonparallel"} {
 		res, err := memoryChild(c, n)
@@ -234,19 +235,33 @@ func gridCells(K int) []cell {
 }
 
 // gridTimes fits every model of the grid alone on every core (the slowest
-// of them: its wall and CPU seconds), then all of them at once, one fit per
-// core as a plan's grid runs (the grid's wall and CPU seconds).
-func gridTimes(d *fit.Data, K int) (slowest, slowestCPU float64, name string, grid, gridCPU float64) {
+// of them: its wall and CPU seconds, and its passes over the data), then
+// all of them through fit.FitGrid, the path of a plan's grid (the grid's
+// wall and CPU seconds and passes over the data).
+func gridTimes(d *fit.Data, K int) (g gridTiming) {
 	all := gridCells(K)
-	wall, cpu := fitOneByOne(d, all, runtime.GOMAXPROCS(0))
+	workers := runtime.GOMAXPROCS(0)
+	wall, cpu, passes := fitOneByOne(d, all, workers)
 	for i, s := range wall {
-		if s > slowest {
-			slowest, slowestCPU, name = s, cpu[i], all[i].name
+		g.singlePasses += passes[i]
+		if s > g.slowest {
+			g.slowest, g.slowestCPU, g.name, g.slowestPasses = s, cpu[i], all[i].name, passes[i]
 		}
 	}
+	r0 := fit.RowsEvaluated()
 	c0 := cpuSeconds()
-	grid = fitAtOnce(d, all)
-	return slowest, slowestCPU, name, grid, cpuSeconds() - c0
+	g.grid = fitAtOnce(d, all)
+	g.gridCPU = cpuSeconds() - c0
+	g.gridPasses = float64(fit.RowsEvaluated()-r0) / float64(d.N())
+	return g
+}
+
+// gridTiming is what gridTimes measured.
+type gridTiming struct {
+	slowest, slowestCPU, slowestPasses float64
+	name                               string
+	grid, gridCPU, gridPasses          float64
+	singlePasses                       float64 // the models fitted one by one, summed
 }
 
 // memoryResult is what a fit in a fresh process used: the peak resident

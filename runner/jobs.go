@@ -60,42 +60,45 @@ func (e *FitEntry) settle(res *fit.Result, err error, sandwich func(*fit.Result)
 	}
 }
 
-// localJobs fits every entry here, opt.Workers at once; progress hears of
-// each finished fit.
+// localJobs fits every entry here through fit.FitGrid, opt.Workers at
+// once (each fit using that many goroutines over row blocks, so that the
+// last fits of a grid keep every core busy); progress hears of each
+// finished fit.
 func localJobs(entries []*FitEntry, t gridTarget, opt Options) {
-	var wg sync.WaitGroup
-	sem := make(chan struct{}, opt.Workers)
 	var mu sync.Mutex
 	done, total := 0, 0
-	for _, e := range entries {
-		if e.Err == "" {
-			total++
+	settled := func(e *FitEntry, res *fit.Result, err error) {
+		e.settle(res, err, t.sandwich)
+		if opt.Progress != nil {
+			mu.Lock()
+			done++
+			opt.Progress.Fitted(t.label, e.ID, done, total)
+			mu.Unlock()
 		}
 	}
+	var models []fit.Model
+	var fitted, failed []*FitEntry
+	var errs []error
 	for _, e := range entries {
 		if e.Err != "" {
 			continue
 		}
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			sem <- struct{}{}
-			defer func() { <-sem }()
-			m, err := e.Spec.Model()
-			var res *fit.Result
-			if err == nil {
-				res, err = fit.Fit(t.data, m, t.fit)
-			}
-			e.settle(res, err, t.sandwich)
-			if opt.Progress != nil {
-				mu.Lock()
-				done++
-				opt.Progress.Fitted(t.label, e.ID, done, total)
-				mu.Unlock()
-			}
-		}()
+		total++
+		m, err := e.Spec.Model()
+		if err != nil {
+			failed, errs = append(failed, e), append(errs, err)
+			continue
+		}
+		models, fitted = append(models, m), append(fitted, e)
 	}
-	wg.Wait()
+	for k, e := range failed {
+		settled(e, nil, errs[k])
+	}
+	fo := t.fit
+	fo.Workers = opt.Workers
+	fit.FitGrid(t.data, models, fo, opt.Workers, func(k int, res *fit.Result, err error) {
+		settled(fitted[k], res, err)
+	})
 }
 
 // remoteJobs dispatches the fits to the executor as jobs and stores the

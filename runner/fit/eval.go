@@ -4,12 +4,23 @@ import (
 	"math"
 	"runtime"
 	"sync"
+	"sync/atomic"
 	"time"
 )
 
 // blockRows is the number of rows of one block of work. Blocks are summed in
 // order, so results do not depend on the number of workers.
 const blockRows = 4096
+
+// rowsEvaluated counts the rows of every evaluation of a log-likelihood
+// (RowsEvaluated).
+var rowsEvaluated atomic.Int64
+
+// RowsEvaluated is the number of rows over which this process has
+// evaluated a log-likelihood (with or without derivatives), summed over
+// every evaluation: divided by a data set's rows, the number of passes over
+// the data. Benchmarks read it to count the work of a fit.
+func RowsEvaluated() int64 { return rowsEvaluated.Load() }
 
 // design is the data of one fit, row-major, never expanded per equation.
 type design struct {
@@ -185,6 +196,7 @@ func (p *problem) coefs(theta []float64) *coefs {
 // evaluate sums log-likelihood (order 0), score pieces (1) and information
 // pieces (2) over all rows; expected=true uses the expected information.
 func (p *problem) evaluate(theta []float64, order int, expected bool) *acc {
+	rowsEvaluated.Add(int64(p.d.n))
 	c := p.coefs(theta)
 	nb := (p.d.n + blockRows - 1) / blockRows
 	if nb == 0 {

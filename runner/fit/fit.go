@@ -148,6 +148,13 @@ func Fit(d *Data, m Model, opt Options) (*Result, error) {
 	if err := d.validate(); err != nil {
 		return nil, err
 	}
+	return fitValid(d, m, opt, &shared{})
+}
+
+// fitValid is Fit on data that passed validate; sh holds what the fits
+// on these data share (the rank check, the compressed design, and in a
+// grid the fitted models a constrained fit builds its starts from).
+func fitValid(d *Data, m Model, opt Options, sh *shared) (*Result, error) {
 	ly, err := newLayout(m, d.J, d.Predictors)
 	if err != nil {
 		return nil, &InputError{err.Error()}
@@ -156,21 +163,20 @@ func Fit(d *Data, m Model, opt Options) (*Result, error) {
 	if float64(len(ly.params)) > nobs {
 		return nil, inputErr("model %s has %d parameters but only %g observations", m.Name(), len(ly.params), nobs)
 	}
-	if err := d.checkRank(m); err != nil {
+	if err := sh.rank(d); err != nil {
 		return nil, err
 	}
 	if opt.MaxIter <= 0 {
 		opt.MaxIter = 200
 	}
-	des := d.design().compressed()
-	pr := newProblem(des, m, ly, opt.Workers)
+	pr := newProblem(sh.design(d), m, ly, opt.Workers)
 	start := opt.Start
 	if start != nil && len(start) != len(ly.params) {
 		return nil, inputErr("start has %d values for %d parameters", len(start), len(ly.params))
 	}
 	if len(ly.groups) > 0 {
 		// Constrained predictors: several starts, the best kept.
-		return multiStart(d, m, ly, pr, opt)
+		return multiStart(d, m, ly, pr, opt, sh)
 	}
 	if start == nil {
 		start = startValues(d, m, ly)

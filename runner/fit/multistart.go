@@ -70,8 +70,8 @@ type runRecord struct {
 
 // multiStart fits a model with constrained predictors from several starts
 // and keeps the best log-likelihood.
-func multiStart(d *Data, m Model, ly *layout, pr *problem, opt Options) (*Result, error) {
-	aux, err := newAuxiliary(d, m, ly, opt)
+func multiStart(d *Data, m Model, ly *layout, pr *problem, opt Options, sh *shared) (*Result, error) {
+	aux, err := newAuxiliary(d, m, ly, opt, sh)
 	if err != nil {
 		return nil, err
 	}

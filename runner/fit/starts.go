@@ -35,7 +35,7 @@ func auxModels(m Model) (par, partial Model) {
 	return par, partial
 }
 
-func newAuxiliary(d *Data, m Model, ly *layout, opt Options) (*auxiliary, error) {
+func newAuxiliary(d *Data, m Model, ly *layout, opt Options, sh *shared) (*auxiliary, error) {
 	parM, partM := auxModels(m)
 	o := Options{MaxIter: opt.MaxIter, Workers: opt.Workers}
 	a := &auxiliary{sd: predictorSD(d), partM: partM}
@@ -46,7 +46,7 @@ func newAuxiliary(d *Data, m Model, ly *layout, opt Options) (*auxiliary, error)
 	a.pLy = pLy
 	// Without a finite partial maximum there is no rank-1 start and no
 	// approximation; that is not an error.
-	if partial, err := Fit(d, partM, o); err == nil && partial.OK() {
+	if partial, err := sh.fit(d, partM, o); err == nil && partial.OK() {
 		a.partial = partial
 		if info, err := invertSym(partial.Cov, len(partial.Estimates)); err == nil {
 			a.sur = &surrogate{rankMap: newRankMap(ly, pLy, m.Effects, nil), hat: partial.Estimates, info: info}
@@ -59,7 +59,7 @@ func newAuxiliary(d *Data, m Model, ly *layout, opt Options) (*auxiliary, error)
 		a.base = a.sur.parallelStart()
 		return a, nil
 	}
-	par, err := Fit(d, parM, o)
+	par, err := sh.fit(d, parM, o)
 	if err != nil {
 		return nil, err
 	}
