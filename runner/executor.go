@@ -18,8 +18,9 @@ type Job struct {
 	DataHash    string // hex SHA-256 of the data file bytes
 	DataOptions data.Options
 	// Design, when set, turns the columns read into the design columns
-	// (rebuilt on the same rows, so every frozen constant is the same).
-	Design     *design.Spec `json:",omitempty"`
+	// with the constants frozen where the design was built (the data
+	// file's rows, or imputed set 1 of imputed data).
+	Design     *design.Frozen `json:",omitempty"`
 	FitOptions fit.Options
 }
 
@@ -48,7 +49,11 @@ func ExecuteJobFiles(paths []string, job Job) (*fit.Result, error) {
 	}
 	d := FitData(ds)
 	if job.Design != nil {
-		if _, d, err = buildDesign(*job.Design, ds); err != nil {
+		dz, err := job.Design.Design()
+		if err != nil {
+			return nil, err
+		}
+		if d, err = frozenData(dz, ds); err != nil {
 			return nil, err
 		}
 	}

@@ -119,11 +119,11 @@ func designSets(spec design.Spec, sets []*data.Dataset) (*design.Design, []*fit.
 	}
 	out := []*fit.Data{d0}
 	for k, ds := range sets[1:] {
-		X, i, err := dz.Matrix(ds.X, ds.N)
+		d, err := frozenData(dz, ds)
 		if err != nil {
-			return nil, nil, fmt.Errorf("imputed set %d, data line %d: %v", k+2, ds.Lines[i], err)
+			return nil, nil, fmt.Errorf("imputed set %d, %v", k+2, err)
 		}
-		out = append(out, &fit.Data{Y: ds.Y, J: len(ds.Categories), X: X, Predictors: dz.Columns, Categories: ds.Categories, Weights: ds.Weights, Offset: ds.Offset})
+		out = append(out, d)
 	}
 	return dz, out, nil
 }

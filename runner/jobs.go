@@ -28,7 +28,7 @@ type remoteData struct {
 	dataFile    string
 	dataHash    string
 	dataOptions data.Options
-	design      *design.Spec
+	design      *design.Frozen
 }
 
 // fitGrid is the one path by which the fits of a grid are made: by the

@@ -115,8 +115,7 @@ func runOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash 
 	target := gridTarget{label: oc.Column, data: or.FitData, fit: fopt, sandwich: sandwich,
 		remote: &remoteData{outcome: oc.Column, dataFile: an.DataFile, dataHash: dataHash, dataOptions: r.Options}}
 	if !dz.Trivial() {
-		spec := r.Design
-		target.remote.design = &spec
+		target.remote.design = dz.Freeze(r.Design)
 	}
 	if err := fitGrid(jobs, target, opt); err != nil {
 		return nil, err

@@ -24,16 +24,25 @@ func buildDesign(spec design.Spec, ds *data.Dataset) (*design.Design, *fit.Data,
 		}
 		return nil, nil, err
 	}
+	d, err := frozenData(dz, ds)
+	if err != nil {
+		return nil, nil, err
+	}
+	return dz, d, nil
+}
+
+// frozenData is the fit input of ds through the design dz, whose
+// constants may have been frozen on other rows (imputed set 1).
+func frozenData(dz *design.Design, ds *data.Dataset) (*fit.Data, error) {
 	X, i, err := dz.Matrix(ds.X, ds.N)
 	if err != nil {
 		if ds.Parts != nil {
-			return nil, nil, fmt.Errorf("data %s: %v", ds.Where(ds.Lines[i]), err)
+			return nil, fmt.Errorf("data %s: %v", ds.Where(ds.Lines[i]), err)
 		}
-		return nil, nil, fmt.Errorf("data line %d: %v", ds.Lines[i], err)
+		return nil, fmt.Errorf("data line %d: %v", ds.Lines[i], err)
 	}
-	d := &fit.Data{Y: ds.Y, J: len(ds.Categories), X: X, Predictors: dz.Columns, Categories: ds.Categories,
-		Weights: ds.Weights, Offset: ds.Offset}
-	return dz, d, nil
+	return &fit.Data{Y: ds.Y, J: len(ds.Categories), X: X, Predictors: dz.Columns, Categories: ds.Categories,
+		Weights: ds.Weights, Offset: ds.Offset}, nil
 }
 
 // termsOf lists the outcome's terms with their design columns.

@@ -82,8 +82,21 @@ func (e *Error) Error() string {
 // sampling weights make the sample constants weighted), lines the data
 // line of each row (nil: none).
 func Build(spec Spec, raw []float64, n int, w []float64, lines []int) (*Design, error) {
+	return build(spec, raw, n, w, lines, nil)
+}
+
+// build is Build; with fz set, the constants are fz's instead of the
+// sample's (raw is not read).
+func build(spec Spec, raw []float64, n int, w []float64, lines []int, fz *Frozen) (*Design, error) {
 	S := len(spec.Sources)
 	d := &Design{Sources: spec.Sources, SourceScale: make([]float64, S)}
+	if fz != nil {
+		if len(fz.Terms) != len(spec.Terms) || len(fz.SourceScale) != S {
+			return nil, fmt.Errorf("frozen design: %d terms and %d scales for %d terms and %d columns", len(fz.Terms), len(fz.SourceScale), len(spec.Terms), S)
+		}
+		copy(d.SourceScale, fz.SourceScale)
+		n = 0
+	}
 	col := func(s int) []float64 {
 		out := make([]float64, n)
 		for i := range out {
@@ -92,6 +105,9 @@ func Build(spec Spec, raw []float64, n int, w []float64, lines []int) (*Design, 
 		return out
 	}
 	for s, src := range spec.Sources {
+		if fz != nil {
+			break
+		}
 		d.SourceScale[s] = 1
 		if src.Cat == nil && n > 1 {
 			if _, sd := meanSD(col(s), w); sd > 0 {
@@ -100,7 +116,11 @@ func Build(spec Spec, raw []float64, n int, w []float64, lines []int) (*Design, 
 		}
 	}
 	index := map[string]int{}
-	for _, ts := range spec.Terms {
+	for k, ts := range spec.Terms {
+		var ft *FrozenTerm
+		if fz != nil {
+			ft = &fz.Terms[k]
+		}
 		if _, dup := index[ts.Name]; dup {
 			return nil, &Error{Key: ts.Key, Msg: fmt.Sprintf("term %q is given twice", ts.Name)}
 		}
@@ -116,9 +136,9 @@ func Build(spec Spec, raw []float64, n int, w []float64, lines []int) (*Design, 
 			t.Source = s
 			v := col(s)
 			if spec.Sources[s].Cat != nil {
-				err = d.buildCategorical(&t, spec.Sources[s], v, w)
+				err = d.buildCategorical(&t, spec.Sources[s], v, w, ft)
 			} else {
-				err = d.buildNumeric(&t, spec.Sources[s].Name, v, w, lines)
+				err = d.buildNumeric(&t, spec.Sources[s].Name, v, w, lines, ft)
 			}
 		}
 		if err != nil {
@@ -177,13 +197,20 @@ func LevelName(level string) string {
 	return b.String()
 }
 
-func (d *Design) buildCategorical(t *Term, src Source, v, w []float64) error {
+func (d *Design) buildCategorical(t *Term, src Source, v, w []float64, fz *FrozenTerm) error {
 	c := src.Cat
 	t.Kind = KindCategorical
 	L := len(c.Levels)
 	count := make([]float64, L)
 	for i, x := range v {
 		count[int(x)] += weight(w, i)
+	}
+	if fz != nil { // the levels kept where the design was built
+		for l, name := range c.Levels {
+			if slices.Contains(fz.Kept, name) {
+				count[l] = 1
+			}
+		}
 	}
 	ref := referenceOf(c)
 	var keptIdx []int

@@ -9,9 +9,14 @@ import (
 )
 
 // buildNumeric freezes the constants of a numeric term from the sample.
-func (d *Design) buildNumeric(t *Term, column string, v, w []float64, lines []int) error {
+func (d *Design) buildNumeric(t *Term, column string, v, w []float64, lines []int, fz *FrozenTerm) error {
 	t.Kind = KindNumeric
 	tr := t.Transform
+	if fz != nil {
+		fz.thaw(t)
+		t.Columns = numericNames(t.Name, tr, len(t.Knots))
+		return nil
+	}
 	u := make([]float64, len(v))
 	for i, x := range v {
 		y, msg := pre(tr, x)

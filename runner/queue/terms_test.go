@@ -15,7 +15,7 @@ import (
 
 // Jobs whose predictors are categorical terms (Madsen 1976, Copenhagen
 // housing: infl, type and cont as levels) run on a worker, which rebuilds
-// the design from the data and the terms, and come back as the local fits
+// the design from the terms and the constants frozen on the coordinator, and come back as the local fits
 // (the design columns, not the raw columns, are the result's predictors).
 func TestJobsWithCategoricalTerms(t *testing.T) {
 	ctx := testContext(t, 60*time.Second)
@@ -37,6 +37,14 @@ func TestJobsWithCategoricalTerms(t *testing.T) {
 	cols := []string{"infl.medium", "infl.high", "type.apartment", "type.atrium", "type.terrace", "cont.high"}
 	dopt := data.Options{Outcome: "sat", Weights: "freq", Predictors: []string{"infl", "type", "cont"},
 		PredictorLevels: map[string][]string{"infl": {"low", "medium", "high"}, "type": {"tower", "apartment", "atrium", "terrace"}, "cont": {"low", "high"}}}
+	ds, err := data.Load(path, dopt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	dz, err := design.Build(spec, ds.X, ds.N, ds.Weights, ds.Lines)
+	if err != nil {
+		t.Fatal(err)
+	}
 	var jobs []runner.Job
 	for i, st := range []fit.Structure{fit.ParallelEffects, fit.PartialEffects} {
 		s, err := runner.EffectsSpec(fit.Cumulative, false, fit.Logit, st, cols, []string{"type.apartment", "type.atrium", "type.terrace"}, nil)
@@ -44,7 +52,7 @@ func TestJobsWithCategoricalTerms(t *testing.T) {
 			t.Fatal(err)
 		}
 		jobs = append(jobs, runner.Job{Outcome: "sat", Index: i, ID: "cumulative/" + st.String() + "/logit", Spec: s,
-			DataFile: "housing_factors.csv", DataHash: h, DataOptions: dopt, Design: &spec,
+			DataFile: "housing_factors.csv", DataHash: h, DataOptions: dopt, Design: dz.Freeze(spec),
 			FitOptions: fit.Options{Covariance: fit.Observed, Workers: 1}})
 	}
 	co := NewCoordinator(ctx, c, "plan-hash", &LogBuffer{})
