@@ -1,10 +1,13 @@
 package runner
 
 import (
+	"bytes"
+	"encoding/csv"
 	"errors"
 	"fmt"
 	"math"
 	"slices"
+	"strconv"
 
 	"ordplan/plan"
 	"ordplan/runner/data"
@@ -85,7 +88,66 @@ func chainedSets(a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Data
 		Chained: &ChainedRecord{Outcome: r.Outcome, Method: "chained equations", Sets: im.Sets, Iterations: im.Iterations, Seed: im.Seed,
 			Stream: stream, Donors: chainedDonors, RowsIncomplete: ds.Incomplete, Visits: res.Visits, Models: res.Models, Trace: res.Trace,
 			Notes: res.Notes, ConvergenceTable: im.ConvergenceTable}}
+	for k, set := range sets {
+		run.sources = append(run.sources, setSource{name: fmt.Sprintf("imputed set %d of %s.csv", k+1, r.Outcome),
+			bytes: func() ([]byte, error) { return setCSV(set, r.Options) }, options: setOptions(set, r.Options)})
+	}
 	return run, sets, dz, nil
+}
+
+// setCSV writes an imputed set as CSV text that the ordinary reader, with
+// setOptions, reads back to the same fit input: the outcome's category
+// labels, the raw columns of the terms (numbers written so that they read
+// back exactly; categorical columns as their level indexes, read as
+// numbers), the weights and the offset.
+func setCSV(ds *data.Dataset, o data.Options) ([]byte, error) {
+	var buf bytes.Buffer
+	w := csv.NewWriter(&buf)
+	header := append([]string{o.Outcome}, o.Predictors...)
+	if ds.Weights != nil {
+		header = append(header, o.Weights)
+	}
+	if ds.Offset != nil {
+		header = append(header, o.Offset)
+	}
+	num := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+	if err := w.Write(header); err != nil {
+		return nil, err
+	}
+	row := make([]string, len(header))
+	for i := 0; i < ds.N; i++ {
+		row[0] = ds.Categories[ds.Y[i]]
+		for k := 0; k < ds.K; k++ {
+			row[1+k] = num(ds.X[i*ds.K+k])
+		}
+		c := 1 + ds.K
+		if ds.Weights != nil {
+			row[c] = num(ds.Weights[i])
+			c++
+		}
+		if ds.Offset != nil {
+			row[c] = num(ds.Offset[i])
+		}
+		if err := w.Write(row); err != nil {
+			return nil, err
+		}
+	}
+	w.Flush()
+	return buf.Bytes(), w.Error()
+}
+
+// setOptions reads the text of setCSV: the categories in order, every
+// raw column as a number, only empty cells missing (there are none).
+func setOptions(ds *data.Dataset, o data.Options) data.Options {
+	out := data.Options{Outcome: o.Outcome, Categories: ds.Categories, Predictors: o.Predictors,
+		MissingTokens: []string{""}, Dialect: data.Dialect{HeaderRow: 1}}
+	if ds.Weights != nil {
+		out.Weights = o.Weights
+	}
+	if ds.Offset != nil {
+		out.Offset = o.Offset
+	}
+	return out
 }
 
 // chainedColumns is the table to impute: the outcome (ordered), the raw

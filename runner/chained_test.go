@@ -10,7 +10,6 @@ import (
 	"testing"
 
 	"ordplan/plan"
-	"ordplan/runner/fit"
 )
 
 // chainedFixture writes an invented survey (seeded): y in three ordered
@@ -146,17 +145,9 @@ func TestChainedNothingMissing(t *testing.T) {
 	}
 }
 
-// noExecutor is a queue that must not be used.
-type noExecutor struct{}
-
-func (noExecutor) Execute([]Job) ([]*fit.Result, []error) { panic("used") }
-
-// TestChainedBadInput: a column missing in every row and a queue.
+// TestChainedBadInput: a column missing in every row.
 func TestChainedBadInput(t *testing.T) {
 	p := chainedFixture(t, "")
-	if _, err := Run(p, Options{Executor: noExecutor{}}); err == nil || !strings.Contains(err.Error(), "data.missing: impute: imputation by chained equations and the analysis of its imputed sets run on this machine only; run without --queue") {
-		t.Errorf("queue: %v", err)
-	}
 	b, _ := os.ReadFile(p.Data.Path)
 	var out []string
 	for i, l := range strings.Split(strings.TrimSpace(string(b)), "\n") {

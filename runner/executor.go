@@ -10,7 +10,7 @@ import (
 // elsewhere: the data file (by content hash), how to read it, the model and
 // the fit options.
 type Job struct {
-	Outcome     string
+	Outcome     string // for messages
 	Index       int // position in the outcome's list of fits
 	ID          string
 	Spec        Spec
@@ -28,6 +28,13 @@ type Job struct {
 // one result or error per job, in job order.
 type Executor interface {
 	Execute(jobs []Job) ([]*fit.Result, []error)
+}
+
+// DataHolder is an Executor that also takes data made or named during the
+// run (the imputed sets), so that its jobs can name them: it keeps b
+// under its hash, returned, and name (for messages and the format).
+type DataHolder interface {
+	HoldData(name string, b []byte) (string, error)
 }
 
 // ExecuteJob fits one job on the data file at path (whose bytes must hash

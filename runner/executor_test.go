@@ -2,10 +2,16 @@ package runner
 
 import (
 	"bytes"
+	"crypto/sha256"
 	"encoding/gob"
+	"encoding/hex"
+	"fmt"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 
+	"ordplan/plan"
 	"ordplan/runner/fit"
 )
 
@@ -72,6 +78,111 @@ func TestExecutorWithoutAnswer(t *testing.T) {
 		}
 		if e.Result != nil || !strings.Contains(e.Err, "no result and no error came back for this fit") {
 			t.Fatalf("entry: result %v, error %q", e.Result, e.Err)
+		}
+	}
+}
+
+// holdingExecutor is gobExecutor that also takes the data handed over
+// during a run (the imputed sets), as the queue's coordinator does, and
+// reads each job's data from the file its hash names.
+type holdingExecutor struct {
+	gobExecutor
+	dir   string
+	files map[string]string // hash -> file
+	jobs  []Job
+}
+
+func (h *holdingExecutor) HoldData(name string, b []byte) (string, error) {
+	sum := sha256.Sum256(b)
+	hash := hex.EncodeToString(sum[:])
+	path := filepath.Join(h.dir, hash+filepath.Ext(name))
+	if err := os.WriteFile(path, b, 0o644); err != nil {
+		return "", err
+	}
+	h.files[hash] = path
+	return hash, nil
+}
+
+func (h *holdingExecutor) Execute(jobs []Job) ([]*fit.Result, []error) {
+	h.jobs = append(h.jobs, jobs...)
+	res := make([]*fit.Result, len(jobs))
+	errs := make([]error, len(jobs))
+	for i, j := range jobs {
+		path, ok := h.files[j.DataHash]
+		if !ok {
+			path = h.path
+		}
+		r, e := gobExecutor{path}.Execute([]Job{j})
+		res[i], errs[i] = r[0], e[0]
+	}
+	return res, errs
+}
+
+// Fits of imputed sets executed elsewhere give the same decisions, byte
+// for byte, as the local run: sets named in a stacked file and in one file
+// per set (terms with a sample mean and quantile knots, frozen on set 1),
+// and sets made by chained equations (handed over as data files, the
+// logarithm of an imputed column among the terms). Every set's fits are
+// jobs of one batch, each carrying the design frozen on set 1.
+func TestImputedFitsThroughExecutor(t *testing.T) {
+	dir := imputedFixture(t, 3, false)
+	// The stacked sets as one file per set.
+	b, _ := os.ReadFile(filepath.Join(dir, "stacked.csv"))
+	lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+	var names []string
+	for k := 1; k <= 3; k++ {
+		out := []string{"y,x1,x2"}
+		for _, l := range lines[1:] {
+			if strings.HasPrefix(l, fmt.Sprintf("%d,", k)) {
+				out = append(out, strings.SplitN(l, ",", 2)[1])
+			}
+		}
+		name := fmt.Sprintf("set%d.csv", k)
+		os.WriteFile(filepath.Join(dir, name), []byte(strings.Join(out, "\n")+"\n"), 0o644)
+		names = append(names, name)
+	}
+	terms := `[{name: x1s, column: x1, spline: {quantiles: [0.1, 0.5, 0.9]}}, {name: x2c, column: x2, centre: mean, scale: sd}]`
+	plans := map[string]*plan.Plan{"chained": chainedFixture(t, "  imputation: {sets: 3, iterations: 2}")}
+	for label, d := range map[string]string{
+		"stacked": "{file: orig.csv, imputed: {file: stacked.csv, column: imp}}",
+		"files":   "{file: orig.csv, imputed: {files: [" + strings.Join(names, ", ") + "]}}",
+	} {
+		src := "version: 1\ntitle: imputed\ndata: " + d + "\noutcomes: [{column: y}]\npredictors: " + terms + `
+models: {approaches: [cumulative], effects: [parallel, partial, nonparallel], partial: {free: [x2c]}}
+tests: {parallel_lines: [lr, wald]}
+rules:
+  - choose: {by: bic}
+`
+		path := filepath.Join(dir, label+".yaml")
+		os.WriteFile(path, []byte(src), 0o644)
+		plans[label] = loadPlanFile(t, path)
+	}
+	for _, label := range []string{"stacked", "files", "chained"} {
+		p := plans[label]
+		local, _ := MarshalStable(BuildDecisions(runPlan(t, p, 2)))
+		ex := &holdingExecutor{gobExecutor: gobExecutor{p.Data.Path}, dir: t.TempDir(), files: map[string]string{}}
+		r, err := Run(p, Options{Workers: 2, Executor: ex})
+		if err != nil {
+			t.Fatalf("%s: %v", label, err)
+		}
+		remote, _ := MarshalStable(BuildDecisions(r))
+		if !bytes.Equal(local, remote) {
+			t.Errorf("%s: decisions differ when the imputed sets' fits run through the executor", label)
+		}
+		im := r.Outcomes[0].Imputed
+		per := len(r.Outcomes[0].Fits)
+		if len(ex.jobs) != im.M*per || len(ex.files) == 0 {
+			t.Fatalf("%s: %d jobs for %d sets of %d fits, %d files held", label, len(ex.jobs), im.M, per, len(ex.files))
+		}
+		hashes := map[string]bool{}
+		for _, j := range ex.jobs {
+			hashes[j.DataHash] = true
+			if j.Design == nil || !strings.Contains(j.ID, "imputed set") {
+				t.Fatalf("%s: job %s carries no frozen design or set", label, j.ID)
+			}
+		}
+		if want := map[string]int{"stacked": 1, "files": 3, "chained": 3}[label]; len(hashes) != want {
+			t.Errorf("%s: the jobs name %d data files, want %d", label, len(hashes), want)
 		}
 	}
 }

@@ -33,6 +33,23 @@ type ImputedRun struct {
 	Chained *ChainedRecord `json:"-"`
 	// brant is the Brant construction of every set, made once.
 	brant *pooledBrant
+	// sources say how a job reads each set elsewhere, and design is the
+	// design frozen on set 1 (nil when trivial), which the jobs carry.
+	sources []setSource
+	design  *design.Frozen
+}
+
+// setSource is an imputed set as a data file a job can name: its name
+// (for messages and the format), its bytes, and how to read it.
+type setSource struct {
+	name    string
+	bytes   func() ([]byte, error)
+	options data.Options
+}
+
+// fileBytes gives the pinned bytes of a data file.
+func fileBytes(path string) func() ([]byte, error) {
+	return func() ([]byte, error) { return data.ReadFile(path) }
 }
 
 // imputedSets reads the imputed sets of an outcome, checks that they are
@@ -64,6 +81,7 @@ func imputedSets(a *Analysis, r Reading) (*ImputedRun, []*data.Dataset, *design.
 			}
 			sets = append(sets, ds)
 			names = append(names, im.Files[k])
+			run.sources = append(run.sources, setSource{name: im.Files[k], bytes: fileBytes(path), options: dopt})
 		}
 	} else {
 		run.Source, run.Files, run.Column = "stacked", []string{im.File}, im.Column
@@ -80,6 +98,7 @@ func imputedSets(a *Analysis, r Reading) (*ImputedRun, []*data.Dataset, *design.
 			}
 			sets = append(sets, ds)
 			names = append(names, fmt.Sprintf("%s (%s = %d)", im.File, im.Column, k))
+			run.sources = append(run.sources, setSource{name: im.File, bytes: fileBytes(im.Path), options: o})
 		}
 	}
 	run.M = len(sets)
@@ -181,19 +200,27 @@ func imputationNumbers(src string, im *plan.Imputed, dl data.Dialect) (int, erro
 // poolJobs fits every job on every imputed set and replaces each job's
 // result by the pooled one (Rubin's rules; log-likelihood, AIC and BIC are
 // the means over the sets). It returns the per-set fits, by set then job.
-func poolJobs(a *Analysis, sets []*data.Dataset, jobs []*FitEntry, run *ImputedRun, opt Options, outcome string) [][]*FitEntry {
+// With an Executor the fits of every set are its jobs, all in one batch:
+// each set is handed over as a data file and the jobs carry the design
+// frozen on set 1.
+func poolJobs(a *Analysis, sets []*data.Dataset, jobs []*FitEntry, run *ImputedRun, opt Options, outcome string) ([][]*FitEntry, error) {
 	perSet := make([][]*FitEntry, run.M)
+	grids := make([]gridPart, run.M)
 	for k, d := range run.Sets {
 		cp := make([]*FitEntry, len(jobs))
 		for i, e := range jobs {
 			c := *e
 			cp[i] = &c
 		}
-		// Imputed sets are fitted here: a job's design would be rebuilt
-		// on its own set, not frozen on set 1.
-		fitGrid(cp, gridTarget{label: fmt.Sprintf("%s, imputed set %d/%d", outcome, k+1, run.M), data: d,
-			fit: a.Fit, sandwich: a.Errors.Sandwich(sets[k], d)}, opt)
 		perSet[k] = cp
+		grids[k] = gridPart{entries: cp, target: gridTarget{label: fmt.Sprintf("%s, imputed set %d/%d", outcome, k+1, run.M), data: d,
+			fit: a.Fit, sandwich: a.Errors.Sandwich(sets[k], d)}}
+	}
+	if err := run.remote(opt.Executor, grids, outcome); err != nil {
+		return nil, err
+	}
+	if err := fitGrids(grids, opt); err != nil {
+		return nil, err
 	}
 	for i, e := range jobs {
 		if e.Err != "" {
@@ -231,7 +258,32 @@ func poolJobs(a *Analysis, sets []*data.Dataset, jobs []*FitEntry, run *ImputedR
 		}
 		e.Result, e.Pooled = r, pl
 	}
-	return perSet
+	return perSet, nil
+}
+
+// remote makes every set's grid redoable by the executor ex (nil: none):
+// the set's data go to the executor, which must take data (DataHolder).
+func (run *ImputedRun) remote(ex Executor, grids []gridPart, outcome string) error {
+	if ex == nil {
+		return nil
+	}
+	holder, ok := ex.(DataHolder)
+	if !ok || len(run.sources) != len(grids) {
+		return fmt.Errorf("outcome %q: the executor cannot take the imputed sets' data", outcome)
+	}
+	for k, src := range run.sources {
+		b, err := src.bytes()
+		if err != nil {
+			return fmt.Errorf("outcome %q, imputed set %d: %v", outcome, k+1, err)
+		}
+		h, err := holder.HoldData(src.name, b)
+		if err != nil {
+			return fmt.Errorf("outcome %q, imputed set %d: %v", outcome, k+1, err)
+		}
+		grids[k].target.remote = &remoteData{outcome: outcome, set: fmt.Sprintf("imputed set %d/%d", k+1, run.M),
+			dataFile: src.name, dataHash: h, dataOptions: src.options, design: run.design}
+	}
+	return nil
 }
 
 // poolResults pools the usable fits of one model on every imputed set:
@@ -455,12 +507,6 @@ func fTest(kind fit.TestKind, t impute.FTest, llr, llf float64) fit.Test {
 // grid is fitted on every imputed set and pooled, the tests are pooled
 // (D3, D1), and the rules run on the pooled fits.
 func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*OutcomeResult, error) {
-	if opt.Executor != nil && an.Imputes() {
-		return nil, fmt.Errorf("%s: data.missing: impute: imputation by chained equations and the analysis of its imputed sets run on this machine only; run without --queue", an.Source)
-	}
-	if opt.Executor != nil {
-		return nil, fmt.Errorf("%s: data.imputed: plans on imputed data run on this machine only; run without --queue", an.Source)
-	}
 	var run *ImputedRun
 	var sets []*data.Dataset
 	var dz *design.Design
@@ -473,6 +519,9 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 	}
 	if err != nil {
 		return nil, err
+	}
+	if !dz.Trivial() {
+		run.design = dz.Freeze(r.Design)
 	}
 	ds := *sets[0]
 	if !an.Imputes() {
@@ -499,7 +548,10 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 	or.FreeSets, or.Stepwise = freeSets(an, or.Terms, pooledStepwise(an, or), backward, opt.Workers)
 	jobs, notes := gridJobs(an, or.Terms, or.FreeSets, backward)
 	or.Notes = append(or.Notes, notes...)
-	perSet := poolJobs(an, sets, jobs, run, opt, oc.Column)
+	perSet, err := poolJobs(an, sets, jobs, run, opt, oc.Column)
+	if err != nil {
+		return nil, err
+	}
 	or.Fits = jobs
 	run.Fits = perSet
 	for _, a := range an.Models.Approaches {

@@ -25,6 +25,7 @@ type gridTarget struct {
 // content hash, how to read it and the design.
 type remoteData struct {
 	outcome     string
+	set         string // "imputed set k/m", added to the jobs' ids; "" for the data file
 	dataFile    string
 	dataHash    string
 	dataOptions data.Options
@@ -37,10 +38,31 @@ type remoteData struct {
 // entry (so the order of completion does not matter), a usable fit gets
 // the sandwich step, and an error is kept in the entry.
 func fitGrid(entries []*FitEntry, t gridTarget, opt Options) error {
-	if opt.Executor != nil && t.remote != nil {
-		return remoteJobs(opt.Executor, entries, t)
+	return fitGrids([]gridPart{{entries: entries, target: t}}, opt)
+}
+
+// gridPart is one grid on its target: an outcome's data, or one imputed
+// set.
+type gridPart struct {
+	entries []*FitEntry
+	target  gridTarget
+}
+
+// fitGrids is fitGrid for the grids of several targets (the imputed
+// sets): the Executor gets every fit as one batch, so that workers take
+// fits of all sets at once; here the targets are fitted one after the
+// other.
+func fitGrids(parts []gridPart, opt Options) error {
+	remote := opt.Executor != nil
+	for _, p := range parts {
+		remote = remote && p.target.remote != nil
 	}
-	localJobs(entries, t, opt)
+	if remote {
+		return remoteJobs(opt.Executor, parts)
+	}
+	for _, p := range parts {
+		localJobs(p.entries, p.target, opt)
+	}
 	return nil
 }
 
@@ -101,26 +123,36 @@ func localJobs(entries []*FitEntry, t gridTarget, opt Options) {
 	})
 }
 
-// remoteJobs dispatches the fits to the executor as jobs and stores the
-// results in their entries.
-func remoteJobs(ex Executor, entries []*FitEntry, t gridTarget) error {
-	rd := t.remote
+// remoteJobs dispatches the fits to the executor as jobs, one batch, and
+// stores the results in their entries.
+func remoteJobs(ex Executor, parts []gridPart) error {
 	var jobs []Job
-	var idx []int
-	for i, e := range entries {
-		if e.Err != "" {
-			continue
+	type slot struct {
+		e        *FitEntry
+		sandwich func(*fit.Result) error
+	}
+	var slots []slot
+	for _, p := range parts {
+		rd := p.target.remote
+		for i, e := range p.entries {
+			if e.Err != "" {
+				continue
+			}
+			id := e.ID
+			if rd.set != "" {
+				id += " (" + rd.set + ")"
+			}
+			jobs = append(jobs, Job{Outcome: rd.outcome, Index: i, ID: id, Spec: e.Spec, DataFile: rd.dataFile,
+				DataHash: rd.dataHash, DataOptions: rd.dataOptions, Design: rd.design, FitOptions: p.target.fit})
+			slots = append(slots, slot{e, p.target.sandwich})
 		}
-		jobs = append(jobs, Job{Outcome: rd.outcome, Index: i, ID: e.ID, Spec: e.Spec, DataFile: rd.dataFile,
-			DataHash: rd.dataHash, DataOptions: rd.dataOptions, Design: rd.design, FitOptions: t.fit})
-		idx = append(idx, i)
 	}
 	results, errs := ex.Execute(jobs)
 	if len(results) != len(jobs) || len(errs) != len(jobs) {
 		return fmt.Errorf("the executor returned %d results for %d jobs", len(results), len(jobs))
 	}
-	for k, i := range idx {
-		entries[i].settle(results[k], errs[k], t.sandwich)
+	for k, s := range slots {
+		s.e.settle(results[k], errs[k], s.sandwich)
 	}
 	return nil
 }

@@ -23,11 +23,14 @@ type Coordinator struct {
 	planHash string
 	log      io.Writer
 	files    map[string]string   // data hash -> local path
+	held     map[string][]byte   // data hash -> bytes handed over by the run (HoldData)
 	parts    map[string][]string // hash of data held as parts -> the parts' paths
 	mu       sync.Mutex
 	err      error
 	stats    []BatchStats
 }
+
+var _ runner.DataHolder = (*Coordinator)(nil)
 
 // NewCoordinator returns an executor for a run of the plan with the given
 // hash. ctx bounds every wait for workers; log (may be nil) gets one line
@@ -36,7 +39,7 @@ func NewCoordinator(ctx context.Context, c *Client, planHash string, log io.Writ
 	if c.Log == nil {
 		c.Log = log
 	}
-	return &Coordinator{ctx: ctx, c: c, planHash: planHash, log: log, files: map[string]string{}, parts: map[string][]string{}}
+	return &Coordinator{ctx: ctx, c: c, planHash: planHash, log: log, files: map[string]string{}, held: map[string][]byte{}, parts: map[string][]string{}}
 }
 
 // AddData registers a local data file so that jobs on it can upload it to
@@ -47,6 +50,17 @@ func (co *Coordinator) AddData(path string) (string, error) {
 		return "", fmt.Errorf("data file: %v", err)
 	}
 	co.files[h] = path
+	return h, nil
+}
+
+// HoldData keeps data made or named during the run (the imputed sets of
+// a plan) so that jobs on them can upload them to the data store; it
+// returns the bytes' hash. It implements runner.DataHolder.
+func (co *Coordinator) HoldData(name string, b []byte) (string, error) {
+	h := hashBytes(b)
+	co.mu.Lock()
+	defer co.mu.Unlock()
+	co.held[h] = b
 	return h, nil
 }
 
@@ -111,6 +125,28 @@ func (co *Coordinator) Execute(jobs []runner.Job) ([]*fit.Result, []error) {
 	return results, errs
 }
 
+// upload puts the data file of job j into the data store: a registered
+// file, or bytes the run handed over.
+func (co *Coordinator) upload(j runner.Job) error {
+	co.mu.Lock()
+	b, held := co.held[j.DataHash]
+	co.mu.Unlock()
+	if held {
+		if err := co.c.putBytes(co.ctx, b, j.DataHash, j.DataFile); err != nil {
+			return fmt.Errorf("queue: %v", err)
+		}
+		return nil
+	}
+	path, ok := co.files[j.DataHash]
+	if !ok {
+		return fmt.Errorf("queue: no local file registered for data %s (sha256 %s)", j.DataFile, j.DataHash)
+	}
+	if err := co.c.PutData(co.ctx, path, j.DataHash); err != nil {
+		return fmt.Errorf("queue: %v", err)
+	}
+	return nil
+}
+
 func (co *Coordinator) execute(jobs []runner.Job) ([]*Reply, error) {
 	if err := co.Err(); err != nil {
 		return nil, err
@@ -130,12 +166,8 @@ func (co *Coordinator) execute(jobs []runner.Job) ([]*Reply, error) {
 	for i := range jobs {
 		j := jobs[i]
 		if !uploaded[j.DataHash] {
-			path, ok := co.files[j.DataHash]
-			if !ok {
-				return nil, fmt.Errorf("queue: no local file registered for data %s (sha256 %s)", j.DataFile, j.DataHash)
-			}
-			if err := co.c.PutData(co.ctx, path, j.DataHash); err != nil {
-				return nil, fmt.Errorf("queue: %v", err)
+			if err := co.upload(j); err != nil {
+				return nil, err
 			}
 			uploaded[j.DataHash] = true
 		}

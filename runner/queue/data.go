@@ -39,8 +39,14 @@ func (c *Client) PutData(ctx context.Context, path, hash string) error {
 	if err != nil {
 		return fmt.Errorf("data file: %v", err)
 	}
+	return c.putBytes(ctx, b, hash, path)
+}
+
+// putBytes makes sure the data store holds b under hash, which b must hash
+// to (name is for messages).
+func (c *Client) putBytes(ctx context.Context, b []byte, hash, name string) error {
 	if got := hashBytes(b); got != hash {
-		return fmt.Errorf("data file %s: its bytes hash to %s, not %s (did it change during the run?)", path, got, hash)
+		return fmt.Errorf("data file %s: its bytes hash to %s, not %s (did it change during the run?)", name, got, hash)
 	}
 	want := sha256.Sum256(b)
 	info, err := c.data.GetInfo(ctx, hash)
@@ -51,7 +57,7 @@ func (c *Client) PutData(ctx context.Context, path, hash string) error {
 		return fmt.Errorf("data store: %v", err)
 	}
 	if _, err := c.data.PutBytes(ctx, hash, b); err != nil {
-		return fmt.Errorf("data store: uploading %s: %v", path, err)
+		return fmt.Errorf("data store: uploading %s: %v", name, err)
 	}
 	return nil
 }
