@@ -11,7 +11,7 @@ import (
 // the fit options.
 type Job struct {
 	Outcome     string // for messages
-	Index       int // position in the outcome's list of fits
+	Index       int    // position in the outcome's list of fits
 	ID          string
 	Spec        Spec
 	DataFile    string // name of the data file, for messages
