@@ -41,9 +41,6 @@ func (d *decoder) decodeCategorical(n *yaml.Node) []CategoricalColumn {
 		}
 		if v := m.required("levels"); v != nil {
 			if list, ok := d.names(v, m.at("levels")); ok && d.clean(m.at("levels")) {
-				if len(list) < 2 {
-					d.errorf(deref(v), m.at("levels"), "a categorical predictor needs at least 2 levels, got %d", len(list))
-				}
 				c.Levels = list
 			}
 		}
@@ -51,14 +48,13 @@ func (d *decoder) decodeCategorical(n *yaml.Node) []CategoricalColumn {
 		m.word("coding", "coding", codingWords, &c.Coding)
 		m.boolean("ordered", &c.Ordered)
 		m.word("unobserved", "handling of an unobserved level", unobservedWords, &c.Unobserved)
-		if c.Reference != "" && c.Levels != nil && !slices.Contains(c.Levels, c.Reference) {
-			d.errAt(m.at("reference"), "reference level %s is not among the levels (%s)", quote(c.Reference), strings.Join(c.Levels, ", "))
+		if c.Levels != nil {
+			if key, err := c.Check(); err != nil {
+				d.errAt(m.at(key), "%v", err)
+			}
 		}
 		if c.Coding == design.Successive && !c.Ordered && d.clean(m.at("coding")) {
 			d.errAt(m.at("coding"), "successive-difference coding is for ordered levels; add ordered: true (the levels are then in the order listed)")
-		}
-		if c.Coding == design.Successive && m.get("reference") != nil && len(c.Levels) > 0 && c.Reference != c.Levels[0] {
-			d.errAt(m.at("reference"), "successive-difference coding compares each level with the one before; the reference is the first level (%s)", quote(c.Levels[0]))
 		}
 		if c.Reference == "" && len(c.Levels) > 0 {
 			c.Reference = c.Levels[0]
@@ -162,9 +158,6 @@ func (d *decoder) decodeTerm(n *yaml.Node, path string) (design.TermSpec, bool) 
 			tr.Sqrt = true
 			parts = append(parts, "sqrt")
 		}
-		if tr.Log && tr.Sqrt {
-			d.errAt(m.at("sqrt"), "give log or sqrt, not both")
-		}
 	}
 	if v := m.get("centre"); v != nil {
 		dv := deref(v)
@@ -190,8 +183,8 @@ func (d *decoder) decodeTerm(n *yaml.Node, path string) (design.TermSpec, bool) 
 		if pm != nil {
 			if dg := pm.required("degree"); dg != nil {
 				if k, ok := d.integer(dg, pm.at("degree")); ok {
-					if k < 1 || k > 10 {
-						d.errorf(deref(dg), pm.at("degree"), "degree %d is out of range (want 1 to 10)", k)
+					if err := design.CheckDegree(int(k)); err != nil {
+						d.errorf(deref(dg), pm.at("degree"), "%v", err)
 					} else {
 						tr.Poly = int(k)
 					}
@@ -204,9 +197,6 @@ func (d *decoder) decodeTerm(n *yaml.Node, path string) (design.TermSpec, bool) 
 		parts = append(parts, "polynomial")
 	}
 	if v := m.get("spline"); v != nil {
-		if m.get("polynomial") != nil {
-			d.errAt(m.at("spline"), "give polynomial or spline, not both")
-		}
 		sm := d.mapping(v, m.at("spline"), splineKeys)
 		if sm != nil {
 			kn, qu := sm.get("knots"), sm.get("quantiles")
@@ -222,6 +212,9 @@ func (d *decoder) decodeTerm(n *yaml.Node, path string) (design.TermSpec, bool) 
 			}
 		}
 		parts = append(parts, "spline")
+	}
+	if key, err := tr.Conflict(); err != nil {
+		d.errAt(m.at(key), "%v", err)
 	}
 	if t.Name == "" {
 		t.Name = strings.Join(append([]string{t.Source}, parts...), ".")
@@ -242,18 +235,14 @@ func (d *decoder) increasing(n *yaml.Node, path string, prob bool) []float64 {
 		if !ok {
 			return nil
 		}
-		if prob && (x < 0 || x > 1) {
-			d.errorf(deref(it), itemPath(path, i), "%v is not a probability (want 0 to 1)", x)
-			return nil
-		}
-		if i > 0 && !(x > out[i-1]) {
-			d.errorf(deref(it), itemPath(path, i), "knots must be strictly increasing (%v follows %v)", x, out[i-1])
-			return nil
-		}
 		out = append(out, x)
 	}
-	if len(out) < 3 {
-		d.errorf(deref(n), path, "a natural cubic spline needs at least 3 knots (2 boundary knots and 1 inside), got %d", len(out))
+	if i, err := design.CheckKnots(out, prob); err != nil {
+		if i < 0 {
+			d.errorf(deref(n), path, "%v", err)
+		} else {
+			d.errorf(deref(items[i]), itemPath(path, i), "%v", err)
+		}
 		return nil
 	}
 	return out
@@ -266,7 +255,7 @@ func (d *decoder) checkTerms(p *Plan, terms []design.TermSpec, listKey string) {
 	names := map[string]bool{}
 	for _, t := range terms {
 		plain := len(t.Interact) == 0 && t.Transform.Empty() && p.categorical(t.Source) == nil
-		if bad := badNameChars(t.Name); bad != "" && !plain && d.clean(t.Key) {
+		if bad := design.BadNameChars(t.Name); bad != "" && !plain && d.clean(t.Key) {
 			d.errAt(t.Key, "term name %s contains %s, which cannot be part of a column name (names are used in hypotheses and in the command line's group syntax); give the term a name with name:", quote(t.Name), bad)
 		}
 		if len(t.Interact) > 0 {
@@ -280,20 +269,6 @@ func (d *decoder) checkTerms(p *Plan, terms []design.TermSpec, listKey string) {
 		}
 		names[t.Name] = true
 	}
-}
-
-// badNameChars names the characters of s that a column name cannot hold.
-func badNameChars(s string) string {
-	var bad []string
-	for _, r := range s {
-		if strings.ContainsRune(" \t[]=+-*,:;()", r) {
-			q := quote(string(r))
-			if !slices.Contains(bad, q) {
-				bad = append(bad, q)
-			}
-		}
-	}
-	return strings.Join(bad, ", ")
 }
 
 func (p *Plan) categorical(col string) *CategoricalColumn {

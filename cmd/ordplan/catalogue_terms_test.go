@@ -74,8 +74,10 @@ func writeTermsData(t *testing.T, dir, _ string) {
 }
 
 // termItems are the catalogue's items on predictor terms: categorical
-// columns, transformations, interactions and subsets.
-func termItems() []badInput {
+// columns, transformations, interactions and subsets (the data of the
+// `ordplan fit` items are written to dir by writeTermsData).
+func termItems(dir string) []badInput {
+	cat := filepath.Join(dir, "cat.csv")
 	return []badInput{
 		{id: "T1", name: "level not declared", args: []string{"run"}, setup: writeTermsData,
 			plan: termsEdit("file: cat.csv", "file: west.csv"), code: 1,
@@ -106,5 +108,11 @@ func termItems() []badInput {
 		{id: "T8", name: "transformed categorical column", args: []string{"check"}, setup: writeTermsData,
 			plan: termsEdit("[site, x]", "[{column: site, log: true}, x]"), code: 1,
 			want: []string{`T8.yaml:6:14: predictors[0]: column "site" is declared categorical (categorical.site) and cannot be transformed`}},
+		{id: "T9", name: "a categorical column given twice with other options (ordplan fit)", setup: writeTermsData, code: 1,
+			args: fitArgs(cat, "--predictors", "site|levels=north/east/south,x,site|levels=north/east/south|ref=east|as=site_e"),
+			want: []string{`--predictors: predictor 3 ("site|levels=north/east/south|ref=east|as=site_e"): column "site" is declared categorical with other options in predictor 1 ("site|levels=north/east/south"); a column has one set of levels, reference and coding: give the same options in every term that uses it`}},
+		{id: "T10", name: "an empty term name (ordplan fit |as=)", setup: writeTermsData, code: 1,
+			args: fitArgs(cat, "--predictors", "site|levels=north/east/south|as=,x"),
+			want: []string{`--predictors: predictor 1 ("site|levels=north/east/south|as="): |as= names the term: give a name (as=name)`}},
 	}
 }

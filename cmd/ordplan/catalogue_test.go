@@ -759,7 +759,7 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{"a client certificate needs its key and a key its certificate (--queue-cert and --queue-key)"}},
 	}
 	items = append(items, registrationItems()...)
-	items = append(items, termItems()...)
+	items = append(items, termItems(dir)...)
 	items = append(items, commandLineItems(dir)...)
 	return items
 }

@@ -2,6 +2,7 @@ package main
 
 import (
 	"fmt"
+	"reflect"
 	"slices"
 	"strconv"
 	"strings"
@@ -35,6 +36,7 @@ named term, term.level (categorical), term.1, term.2 (polynomial, spline) and a&
 func parseCompactTerms(s string) (design.Spec, error) {
 	var spec design.Spec
 	names := map[string]bool{}
+	declared := map[string]string{} // categorical column -> the item that declared it
 	for i, item := range splitList(s) {
 		t, src, err := parseCompactTerm(item, names)
 		if err != nil {
@@ -58,10 +60,14 @@ func parseCompactTerms(s string) (design.Spec, error) {
 		switch {
 		case known < 0:
 			spec.Sources = append(spec.Sources, *src)
-		case src.Cat != nil || spec.Sources[known].Cat != nil:
-			if src.Cat == nil || spec.Sources[known].Cat == nil {
-				return spec, fmt.Errorf("predictor %d (%q): column %q is used both as categorical and as numeric", i+1, item, src.Name)
+			if src.Cat != nil {
+				declared[src.Name] = fmt.Sprintf("predictor %d (%q)", i+1, item)
 			}
+		case src.Cat == nil && spec.Sources[known].Cat == nil:
+		case src.Cat == nil || spec.Sources[known].Cat == nil:
+			return spec, fmt.Errorf("predictor %d (%q): column %q is used both as categorical and as numeric", i+1, item, src.Name)
+		case !reflect.DeepEqual(*src.Cat, *spec.Sources[known].Cat):
+			return spec, fmt.Errorf("predictor %d (%q): column %q is declared categorical with other options in %s; a column has one set of levels, reference and coding: give the same options in every term that uses it", i+1, item, src.Name, declared[src.Name])
 		}
 	}
 	return spec, nil
@@ -85,9 +91,12 @@ func parseCompactTerm(item string, earlier map[string]bool) (design.TermSpec, *d
 			if k != "as" {
 				return t, nil, fmt.Errorf("an interaction takes only |as=name, not |%s", o)
 			}
+			if v == "" {
+				return t, nil, fmt.Errorf("|as= names the term: give a name (as=name)")
+			}
 			t.Name = v
 		}
-		return t, nil, nil
+		return t, nil, checkTermName(t.Name)
 	}
 	if head == "" {
 		return t, nil, fmt.Errorf("no column")
@@ -101,9 +110,6 @@ func parseCompactTerm(item string, earlier map[string]bool) (design.TermSpec, *d
 		switch {
 		case k == "levels":
 			levels := strings.Split(v, "/")
-			if len(levels) < 2 {
-				return t, nil, fmt.Errorf("levels=%s: a categorical column needs at least 2 levels, separated by /", v)
-			}
 			for i, l := range levels {
 				if l == "" || slices.Contains(levels[:i], l) {
 					return t, nil, fmt.Errorf("levels=%s: level %q is empty or given twice", v, l)
@@ -143,8 +149,14 @@ func parseCompactTerm(item string, earlier map[string]bool) (design.TermSpec, *d
 		case k == "polynomial" && hasV:
 			raw := strings.HasSuffix(v, "raw")
 			d, err := strconv.Atoi(strings.TrimSuffix(v, "raw"))
-			if err != nil || d < 1 || d > 10 {
+			if err != nil {
 				return t, nil, fmt.Errorf("polynomial=%s: want a degree from 1 to 10, optionally followed by raw", v)
+			}
+			if err == nil {
+				err = design.CheckDegree(d)
+			}
+			if err != nil {
+				return t, nil, fmt.Errorf("polynomial=%s: %v", v, err)
 			}
 			t.Poly, t.PolyRaw = d, raw
 			suffix = append(suffix, "polynomial")
@@ -156,16 +168,10 @@ func parseCompactTerm(item string, earlier map[string]bool) (design.TermSpec, *d
 				if err != nil {
 					return t, nil, fmt.Errorf("spline=%s: %q is not a number", v, f)
 				}
-				if len(xs) > 0 && !(x > xs[len(xs)-1]) {
-					return t, nil, fmt.Errorf("spline=%s: knots must be strictly increasing", v)
-				}
-				if q && (x < 0 || x > 1) {
-					return t, nil, fmt.Errorf("spline=%s: %v is not a probability", v, x)
-				}
 				xs = append(xs, x)
 			}
-			if len(xs) < 3 {
-				return t, nil, fmt.Errorf("spline=%s: a natural cubic spline needs at least 3 knots", v)
+			if _, err := design.CheckKnots(xs, q); err != nil {
+				return t, nil, fmt.Errorf("spline=%s: %v", v, err)
 			}
 			if q {
 				t.Quantiles = xs
@@ -174,6 +180,9 @@ func parseCompactTerm(item string, earlier map[string]bool) (design.TermSpec, *d
 			}
 			suffix = append(suffix, "spline")
 		case k == "as" && hasV:
+			if v == "" {
+				return t, nil, fmt.Errorf("|as= names the term: give a name (as=name)")
+			}
 			t.Name = v
 		default:
 			return t, nil, fmt.Errorf("unknown option %q", "|"+o)
@@ -189,12 +198,8 @@ func parseCompactTerm(item string, earlier map[string]bool) (design.TermSpec, *d
 		}
 		switch k {
 		case "ref":
-			found := false
-			for _, l := range src.Cat.Levels {
-				found = found || l == v
-			}
-			if !found {
-				return t, nil, fmt.Errorf("ref=%s is not one of the levels %s", v, strings.Join(src.Cat.Levels, "/"))
+			if v == "" {
+				return t, nil, fmt.Errorf("|ref= names the reference level: give one of the levels (ref=%s)", src.Cat.Levels[0])
 			}
 			src.Cat.Reference = v
 		case "coding":
@@ -210,22 +215,38 @@ func parseCompactTerm(item string, earlier map[string]bool) (design.TermSpec, *d
 			src.Cat.Unobserved = design.UnobservedDrop
 		}
 	}
-	if src.Cat != nil && !t.Transform.Empty() {
-		return t, nil, fmt.Errorf("a categorical column cannot be transformed")
+	if src.Cat != nil {
+		if key, err := src.Cat.Check(); err != nil {
+			return t, nil, fmt.Errorf("|%s: %v", compactOption[key], err)
+		}
+		if !t.Transform.Empty() {
+			return t, nil, fmt.Errorf("a categorical column cannot be transformed")
+		}
 	}
-	if t.Log && t.Sqrt {
-		return t, nil, fmt.Errorf("give log or sqrt, not both")
-	}
-	if t.Poly > 0 && t.Spline() {
-		return t, nil, fmt.Errorf("give polynomial or spline, not both")
+	if key, err := t.Transform.Conflict(); err != nil {
+		return t, nil, fmt.Errorf("|%s: %v", compactOption[key], err)
 	}
 	if t.Name == "" {
 		t.Name = strings.Join(append([]string{head}, suffix...), ".")
 	}
-	if bad := strings.IndexAny(t.Name, " []=+-*,:;()"); bad >= 0 && (len(suffix) > 0 || src.Cat != nil) {
-		return t, nil, fmt.Errorf("term name %q holds %q, which a column name cannot (use |as=name)", t.Name, t.Name[bad])
+	if len(suffix) > 0 || src.Cat != nil {
+		if err := checkTermName(t.Name); err != nil {
+			return t, nil, err
+		}
 	}
 	return t, src, nil
+}
+
+// compactOption is the compact form's word for an option the design's
+// checks name by its plan key.
+var compactOption = map[string]string{"levels": "levels", "reference": "ref", "sqrt": "sqrt", "spline": "spline"}
+
+// checkTermName refuses a term name that cannot be part of a column name.
+func checkTermName(name string) error {
+	if bad := design.BadNameChars(name); bad != "" {
+		return fmt.Errorf("term name %q holds %s, which cannot be part of a column name (use |as=name)", name, bad)
+	}
+	return nil
 }
 
 // parseGroups reads constraint groups written as "name:a,b;other:c" (or
