@@ -1,8 +1,10 @@
 package plan
 
 import (
+	"fmt"
 	"math"
 	"slices"
+	"strconv"
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
@@ -423,6 +425,7 @@ func (d *decoder) checkAssumptions(p *Plan) {
 			d.errAt(pa.Key, "%s is categorical: give proportions over its levels, not mean and sd", quote(pa.Column))
 		}
 	}
+	d.checkTransforms(p)
 	d.checkGenerator(p)
 	d.checkCorrelations(p)
 	seen := map[string]bool{}
@@ -515,6 +518,66 @@ func (d *decoder) checkEffect(p *Plan, ts design.TermSpec, cols []string, e *Eff
 		for _, c := range e.Order {
 			if !slices.Contains(cols, c) {
 				d.errAt(childPath(e.Key, c), "%s is not a design column of %s (%s)", quote(c), t, strings.Join(cols, ", "))
+			}
+		}
+	}
+}
+
+// checkTransforms refuses a log or sqrt of a column that the simulation
+// draws with values where it is undefined: a normal distribution without
+// a range, or a range or values of the dictionary reaching the bound
+// (log(v + shift) needs v > -shift, sqrt(v) needs v >= 0). Without it the
+// simulation would stop late, on a drawn value.
+func (d *decoder) checkTransforms(p *Plan) {
+	seen := map[string]bool{}
+	for _, oc := range p.Outcomes {
+		for _, ts := range p.DesignSpec(oc).Terms {
+			tr := ts.Transform
+			if len(ts.Interact) > 0 || !tr.Log && !tr.Sqrt || seen[ts.Key] || p.CategoricalOf(ts.Source) != nil {
+				continue
+			}
+			seen[ts.Key] = true
+			col := ts.Source
+			fn, bound, need := "sqrt("+col+")", 0.0, "of 0 or more"
+			undefined := "below 0"
+			bad := func(v float64) bool { return v < 0 }
+			if tr.Log {
+				fn, bound = "log("+col+")", -tr.Shift+0 // +0: no "-0"
+				switch {
+				case tr.Shift > 0:
+					fn = "log(" + col + " + " + fmtNum(tr.Shift) + ")"
+				case tr.Shift < 0:
+					fn = "log(" + col + " - " + fmtNum(-tr.Shift) + ")"
+				}
+				undefined, need = "at or below "+fmtNum(bound), "above "+fmtNum(bound)
+				bad = func(v float64) bool { return v <= bound }
+			}
+			what := fmt.Sprintf("%s of %s (%s) is undefined for values %s", fn, ts.Key, ts.Name, undefined)
+			var pa *PredictorAssumption
+			for i := range p.Assumptions.Predictors {
+				if p.Assumptions.Predictors[i].Column == col {
+					pa = &p.Assumptions.Predictors[i]
+				}
+			}
+			e := p.EntryOf(col)
+			switch {
+			case e != nil && e.Values != nil:
+				for _, v := range e.Values {
+					if x, err := strconv.ParseFloat(v, 64); err == nil && bad(x) {
+						d.errAt(e.Key+".values", "%s, and %s is drawn from its values in the dictionary, among them %s: remove such values, or change the transformation", what, col, v)
+						break
+					}
+				}
+			case e != nil && e.Range != nil && (pa == nil || pa.SD > 0):
+				if bad(e.Range[0]) {
+					d.errAt(e.Key+".range", "%s, and %s is drawn over its range [%s, %s] in the dictionary: give it a minimum %s", what, col, fmtNum(e.Range[0]), fmtNum(e.Range[1]), need)
+				}
+			case pa != nil && pa.SD > 0:
+				fix := fmt.Sprintf("give %s a range in the dictionary (dictionary.%s.range) with a minimum %s", col, col, need)
+				if tr.Log {
+					fix += ", or a shift (log: {shift: ...})"
+				}
+				d.errAt(pa.Key, "%s, and a normal distribution (mean %s, sd %s) with no range in the dictionary takes such values: %s", what, fmtNum(pa.Mean), fmtNum(pa.SD), fix)
 			}
 		}
 	}

@@ -72,3 +72,46 @@ func TestAssumptionsCanonicalRoundTrip(t *testing.T) {
 		t.Errorf("got %v", err)
 	}
 }
+
+const transformPlan = `version: 1
+data: {file: d.csv}
+outcomes:
+  - column: y
+predictors: [{name: xlog, column: x, log: true}, {name: rs, column: r, sqrt: true}, {name: ws, column: w, log: {shift: 2}}]
+dictionary:
+  x: {}
+  r: {}
+  w: {range: [-3, 5]}
+models: {approaches: [cumulative], effects: [parallel]}
+tests: {parallel_lines: [lr]}
+rules:
+  - choose: {by: aic}
+assumptions:
+  predictors: {x: {mean: 12, sd: 8}, r: {mean: 3, sd: 1}, w: {mean: 1, sd: 1}}
+  outcomes:
+    y:
+      proportions: [0.3, 0.4, 0.3]
+      effects: {xlog: 0.3, rs: 0.2, ws: 0.1}
+`
+
+// TestTransformOfDrawnColumn: a log or sqrt of a column the assumptions
+// draw with values where it is undefined (an unbounded normal, or a range
+// reaching below the log's shift) is refused when the plan is checked,
+// naming the key of the distribution, the term's key and the
+// transformation; a range above the bound is accepted.
+func TestTransformOfDrawnColumn(t *testing.T) {
+	_, err := Parse([]byte(transformPlan), "t.yaml")
+	for _, want := range []string{
+		`t.yaml:15:19: assumptions.predictors.x: log(x) of predictors[0] (xlog) is undefined for values at or below 0, and a normal distribution (mean 12, sd 8) with no range in the dictionary takes such values: give x a range in the dictionary (dictionary.x.range) with a minimum above 0, or a shift (log: {shift: ...})`,
+		`assumptions.predictors.r: sqrt(r) of predictors[1] (rs) is undefined for values below 0, and a normal distribution (mean 3, sd 1) with no range in the dictionary takes such values: give r a range in the dictionary (dictionary.r.range) with a minimum of 0 or more`,
+		`dictionary.w.range: log(w + 2) of predictors[2] (ws) is undefined for values at or below -2, and w is drawn over its range [-3, 5] in the dictionary: give it a minimum above -2`,
+	} {
+		if err == nil || !strings.Contains(err.Error(), want) {
+			t.Errorf("want %q in\n%v", want, err)
+		}
+	}
+	ok := strings.Replace(transformPlan, "  x: {}\n  r: {}\n  w: {range: [-3, 5]}\n", "  x: {range: [0.5, 100]}\n  r: {range: [0, 10]}\n  w: {range: [-1.5, 5]}\n", 1)
+	if _, err := Parse([]byte(ok), "t.yaml"); err != nil {
+		t.Errorf("ranges above the bounds: %v", err)
+	}
+}

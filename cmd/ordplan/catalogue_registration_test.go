@@ -131,6 +131,9 @@ func registrationItems() []badInput {
 			plan: edit("predictors:", "subset:\n  - {column: b, none_of: [w]}\npredictors:") + "categorical:\n  b: {levels: [u, v, w], unobserved: drop}\n" +
 				strings.Replace(assumed("{b: {v: 0.3, w: 0.5}}", ""), "b: {mean: 0, sd: 1}", "b: {proportions: [0.3, 0.3, 0.4]}", 1),
 			want: []string{`assumptions.outcomes.y.effects.b.w: level "w" of b occurs in no simulated row the subset keeps, so the design drops its column (unobserved: drop) and its effect cannot be simulated`}},
+		{id: "A16", name: "a log of a column drawn from a normal distribution without a range", args: []string{"check", "--no-data"}, code: 1, lines: true,
+			plan: edit("[a, b]", "[{name: alog, column: a, log: true}, b]") + assumed("{alog: 0.2}", ""),
+			want: []string{`A16.yaml:15:19: assumptions.predictors.a: log(a) of predictors[0] (alog) is undefined for values at or below 0, and a normal distribution (mean 0, sd 1) with no range in the dictionary takes such values: give a a range in the dictionary (dictionary.a.range) with a minimum above 0, or a shift (log: {shift: ...})`}},
 		{id: "R5", name: "ordplan init over an existing file", args: []string{"init", "--header", "y,a"}, plan: goodPlan, code: 1,
 			want: []string{"init: R5.yaml already exists; ordplan init never overwrites a file"},
 			check: func(t *testing.T, dir, out, errs string) {
