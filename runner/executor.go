@@ -30,6 +30,15 @@ type Executor interface {
 	Execute(jobs []Job) ([]*fit.Result, []error)
 }
 
+// WatchedExecutor is an Executor that also says, while it runs a batch,
+// which jobs have finished: finished(k) for job k, once per job, one call
+// at a time. The run's Progress then hears of fits made elsewhere as of
+// fits made here.
+type WatchedExecutor interface {
+	Executor
+	ExecuteWatched(jobs []Job, finished func(k int)) ([]*fit.Result, []error)
+}
+
 // DataHolder is an Executor that also takes data made or named during the
 // run (the imputed sets), so that its jobs can name them: it keeps b
 // under its hash, returned, and name (for messages and the format).

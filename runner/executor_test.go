@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -184,5 +185,55 @@ rules:
 		if want := map[string]int{"stacked": 1, "files": 3, "chained": 3}[label]; len(hashes) != want {
 			t.Errorf("%s: the jobs name %d data files, want %d", label, len(hashes), want)
 		}
+	}
+}
+
+// watchedExecutor is gobExecutor that says which jobs have finished, last
+// job first (the order of completion is the executor's).
+type watchedExecutor struct{ gobExecutor }
+
+func (w watchedExecutor) ExecuteWatched(jobs []Job, finished func(k int)) ([]*fit.Result, []error) {
+	res, errs := w.Execute(jobs)
+	for k := len(jobs) - 1; k >= 0; k-- {
+		finished(k)
+	}
+	return res, errs
+}
+
+// fitCounts records what a run's Progress hears.
+type fitCounts struct {
+	ids  []string
+	last [2]int // done, total of the last call
+	bad  string
+}
+
+func (c *fitCounts) Fitted(outcome, id string, done, total int) {
+	if done != c.last[0]+1 || (c.last[1] != 0 && total != c.last[1]) {
+		c.bad = fmt.Sprintf("%s: %d of %d after %d of %d", outcome, done, total, c.last[0], c.last[1])
+	}
+	c.ids, c.last = append(c.ids, id), [2]int{done, total}
+}
+
+// Fits made elsewhere are counted by the run's Progress as fits made here
+// are: one call per fit, done counting up to the total, the fit's id.
+func TestProgressOfFitsElsewhere(t *testing.T) {
+	p := loadPlan(t, "gss_stepwise.yaml")
+	var here, there fitCounts
+	if _, err := Run(p, Options{Progress: &here, Workers: 2}); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := Run(p, Options{Progress: &there, Executor: watchedExecutor{gobExecutor{p.Data.Path}}}); err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []*fitCounts{&here, &there} {
+		if c.bad != "" || c.last[0] == 0 || c.last[0] != c.last[1] {
+			t.Errorf("progress: %s; last %d of %d", c.bad, c.last[0], c.last[1])
+		}
+	}
+	a, b := slices.Clone(here.ids), slices.Clone(there.ids)
+	slices.Sort(a)
+	slices.Sort(b)
+	if !slices.Equal(a, b) {
+		t.Errorf("fits counted here %v, elsewhere %v", a, b)
 	}
 }

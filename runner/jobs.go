@@ -58,7 +58,7 @@ func fitGrids(parts []gridPart, opt Options) error {
 		remote = remote && p.target.remote != nil
 	}
 	if remote {
-		return remoteJobs(opt.Executor, parts)
+		return remoteJobs(opt.Executor, parts, opt.Progress)
 	}
 	for _, p := range parts {
 		localJobs(p.entries, p.target, opt)
@@ -82,21 +82,35 @@ func (e *FitEntry) settle(res *fit.Result, err error, sandwich func(*fit.Result)
 	}
 }
 
+// counter tells a run's Progress of the fits of one grid (or batch) as
+// they finish, fits made here and elsewhere alike.
+type counter struct {
+	progress    Progress
+	label       string
+	mu          sync.Mutex
+	done, total int
+}
+
+// finished counts the fit id as done.
+func (c *counter) finished(id string) {
+	if c.progress == nil {
+		return
+	}
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	c.done++
+	c.progress.Fitted(c.label, id, c.done, c.total)
+}
+
 // localJobs fits every entry here through fit.FitGrid, opt.Workers at
 // once (each fit using that many goroutines over row blocks, so that the
 // last fits of a grid keep every core busy); progress hears of each
 // finished fit.
 func localJobs(entries []*FitEntry, t gridTarget, opt Options) {
-	var mu sync.Mutex
-	done, total := 0, 0
+	count := &counter{progress: opt.Progress, label: t.label}
 	settled := func(e *FitEntry, res *fit.Result, err error) {
 		e.settle(res, err, t.sandwich)
-		if opt.Progress != nil {
-			mu.Lock()
-			done++
-			opt.Progress.Fitted(t.label, e.ID, done, total)
-			mu.Unlock()
-		}
+		count.finished(e.ID)
 	}
 	var models []fit.Model
 	var fitted, failed []*FitEntry
@@ -105,7 +119,7 @@ func localJobs(entries []*FitEntry, t gridTarget, opt Options) {
 		if e.Err != "" {
 			continue
 		}
-		total++
+		count.total++
 		m, err := e.Spec.Model()
 		if err != nil {
 			failed, errs = append(failed, e), append(errs, err)
@@ -124,8 +138,9 @@ func localJobs(entries []*FitEntry, t gridTarget, opt Options) {
 }
 
 // remoteJobs dispatches the fits to the executor as jobs, one batch, and
-// stores the results in their entries.
-func remoteJobs(ex Executor, parts []gridPart) error {
+// stores the results in their entries; progress hears of each finished
+// fit when the executor says (a WatchedExecutor), under the outcome's name.
+func remoteJobs(ex Executor, parts []gridPart, progress Progress) error {
 	var jobs []Job
 	type slot struct {
 		e        *FitEntry
@@ -147,7 +162,18 @@ func remoteJobs(ex Executor, parts []gridPart) error {
 			slots = append(slots, slot{e, p.target.sandwich})
 		}
 	}
-	results, errs := ex.Execute(jobs)
+	var results []*fit.Result
+	var errs []error
+	if w, ok := ex.(WatchedExecutor); ok && progress != nil && len(jobs) > 0 {
+		count := &counter{progress: progress, label: jobs[0].Outcome, total: len(jobs)}
+		results, errs = w.ExecuteWatched(jobs, func(k int) {
+			if k >= 0 && k < len(slots) {
+				count.finished(slots[k].e.ID)
+			}
+		})
+	} else {
+		results, errs = ex.Execute(jobs)
+	}
 	if len(results) != len(jobs) || len(errs) != len(jobs) {
 		return fmt.Errorf("the executor returned %d results for %d jobs", len(results), len(jobs))
 	}

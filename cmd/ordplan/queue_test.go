@@ -205,7 +205,13 @@ func TestQueueRunSurvivesKilledWorker(t *testing.T) {
 	if !strings.Contains(r[1], "published") {
 		t.Errorf("no queue line on stderr: %s", r[1])
 	}
+	// The progress lines of fits made here, for the fits the workers made.
+	if m := progressEnd.FindStringSubmatch(r[1]); m == nil || m[1] != m[2] {
+		t.Errorf("no progress line ending the grid on stderr: %s", r[1])
+	}
 }
+
+var progressEnd = regexp.MustCompile(`(?m)^\S+: (\d+) of (\d+) fits, \S+ elapsed$`)
 
 var batchLine = regexp.MustCompile(`(\d+) fits: (\d+) results present, (\d+) jobs still queued, (\d+) published`)
 

@@ -24,7 +24,7 @@ type BatchStats struct {
 // batchHooks report a batch's progress.
 type batchHooks struct {
 	started  func(BatchStats) // after the missing tasks are published
-	progress func(done int)   // after each entry while waiting
+	finished func(i int)      // task i has its reply (stored before, or new)
 }
 
 // batch is the state of one runBatch.
@@ -38,6 +38,7 @@ type batch struct {
 	bad     []int    // discarded replies per task
 	done    int
 	st      BatchStats
+	hooks   batchHooks
 }
 
 // runBatch makes sure every task of the batch has a valid reply and
@@ -61,7 +62,7 @@ type batch struct {
 // JobDeadline the batch fails.
 func (c *Client) runBatch(ctx context.Context, id string, tasks []*Task, h batchHooks) ([]*Reply, BatchStats, error) {
 	b := &batch{c: c, ctx: ctx, id: id, tasks: tasks, replies: make([]*Reply, len(tasks)),
-		revs: make([]uint64, len(tasks)), bad: make([]int, len(tasks))}
+		revs: make([]uint64, len(tasks)), bad: make([]int, len(tasks)), hooks: h}
 	b.st.Jobs = len(tasks)
 	if len(tasks) == 0 {
 		return b.replies, b.st, nil
@@ -158,9 +159,6 @@ func (c *Client) runBatch(ctx context.Context, id string, tasks []*Task, h batch
 				}
 			}
 			timer.Reset(deadline)
-			if h.progress != nil {
-				h.progress(b.done)
-			}
 		}
 	}
 	return b.replies, b.st, nil
@@ -189,6 +187,9 @@ func (b *batch) take(e jetstream.KeyValueEntry, republish bool) (bool, error) {
 	if err == nil {
 		b.replies[i], b.revs[i] = r, e.Revision()
 		b.done++
+		if b.hooks.finished != nil {
+			b.hooks.finished(i)
+		}
 		return true, nil
 	}
 	b.bad[i]++

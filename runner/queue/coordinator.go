@@ -98,9 +98,17 @@ func RunID(planHash string, jobs []runner.Job) (string, error) {
 // Execute publishes the jobs, collects one result or error per job, in job
 // order, and reuses results a previous coordinator of the same run left.
 func (co *Coordinator) Execute(jobs []runner.Job) ([]*fit.Result, []error) {
+	return co.ExecuteWatched(jobs, nil)
+}
+
+var _ runner.WatchedExecutor = (*Coordinator)(nil)
+
+// ExecuteWatched is Execute calling finished(k) (when not nil) as job k
+// gets its reply, one call at a time: the run's progress lines.
+func (co *Coordinator) ExecuteWatched(jobs []runner.Job, finished func(k int)) ([]*fit.Result, []error) {
 	results := make([]*fit.Result, len(jobs))
 	errs := make([]error, len(jobs))
-	replies, err := co.execute(jobs)
+	replies, err := co.execute(jobs, finished)
 	if err != nil {
 		co.mu.Lock()
 		if co.err == nil {
@@ -147,7 +155,7 @@ func (co *Coordinator) upload(j runner.Job) error {
 	return nil
 }
 
-func (co *Coordinator) execute(jobs []runner.Job) ([]*Reply, error) {
+func (co *Coordinator) execute(jobs []runner.Job, finished func(k int)) ([]*Reply, error) {
 	if err := co.Err(); err != nil {
 		return nil, err
 	}
@@ -155,7 +163,7 @@ func (co *Coordinator) execute(jobs []runner.Job) ([]*Reply, error) {
 		return nil, nil
 	}
 	if paths, ok := co.parts[jobs[0].DataHash]; ok {
-		return co.executeParts(jobs, paths)
+		return co.executeParts(jobs, paths, finished)
 	}
 	id, err := RunID(co.planHash, jobs)
 	if err != nil {
@@ -175,20 +183,13 @@ func (co *Coordinator) execute(jobs []runner.Job) ([]*Reply, error) {
 	}
 	start := time.Now()
 	outcome := jobs[0].Outcome
-	last := start
-	progress := func(done int) {
-		if co.log != nil && time.Since(last) > 5*time.Second && done < len(jobs) {
-			last = time.Now()
-			fmt.Fprintf(co.log, "queue: %s: %d/%d fits done\n", outcome, done, len(jobs))
-		}
-	}
 	started := func(st BatchStats) {
 		if co.log != nil {
 			fmt.Fprintf(co.log, "queue: %s: run %s: %d fits: %d results present, %d jobs still queued, %d published\n",
 				outcome, id[:12], st.Jobs, st.Present, st.Queued, st.Published)
 		}
 	}
-	replies, st, err := co.c.runBatch(co.ctx, id, tasks, batchHooks{started: started, progress: progress})
+	replies, st, err := co.c.runBatch(co.ctx, id, tasks, batchHooks{started: started, finished: finished})
 	co.mu.Lock()
 	co.stats = append(co.stats, st)
 	co.mu.Unlock()

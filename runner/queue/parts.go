@@ -46,7 +46,7 @@ func notPartitioned(j runner.Job) string {
 }
 
 // executeParts fits the jobs of a run on data held as parts, in job order.
-func (co *Coordinator) executeParts(jobs []runner.Job, paths []string) ([]*Reply, error) {
+func (co *Coordinator) executeParts(jobs []runner.Job, paths []string, finished func(k int)) ([]*Reply, error) {
 	start := time.Now()
 	outcome := jobs[0].Outcome
 	type described struct {
@@ -60,6 +60,9 @@ func (co *Coordinator) executeParts(jobs []runner.Job, paths []string) ([]*Reply
 	for i, j := range jobs {
 		r := &Reply{Index: i, ID: j.ID, Worker: "(coordinator)"}
 		replies[i] = r
+		if i > 0 && finished != nil {
+			finished(i - 1) // the jobs are done in order: the one before is
+		}
 		if why := notPartitioned(j); why != "" {
 			if co.log != nil {
 				fmt.Fprintf(co.log, "queue: %s: %s fitted here, not over the parts: %s\n", outcome, j.ID, why)
@@ -108,6 +111,9 @@ func (co *Coordinator) executeParts(jobs []runner.Job, paths []string) ([]*Reply
 		}
 		r.Result = res
 		over++
+	}
+	if finished != nil {
+		finished(len(jobs) - 1)
 	}
 	if co.log != nil {
 		fmt.Fprintf(co.log, "queue: %s: %d of %d fits summed over %d parts by the workers, in %.1fs\n", outcome, over, len(jobs), len(paths), time.Since(start).Seconds())
