@@ -99,6 +99,28 @@ func Run(t testing.TB, dir string, files ...string) Values {
 	return vals
 }
 
+// Frozen reads the output of an R script saved in a file, so that a check
+// runs without R: lines starting with "#" (how and where the values were
+// made) are left out, the rest is read as Run reads a script's output.
+func Frozen(t testing.TB, path string) Values {
+	t.Helper()
+	b, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var keep []string
+	for _, l := range strings.Split(string(b), "\n") {
+		if !strings.HasPrefix(l, "#") {
+			keep = append(keep, l)
+		}
+	}
+	vals, err := parse([]byte(strings.Join(keep, "\n")))
+	if err != nil {
+		t.Fatalf("%s: %v", path, err)
+	}
+	return vals
+}
+
 func parse(b []byte) (Values, error) {
 	vals := Values{}
 	sc := bufio.NewScanner(bytes.NewReader(b))

@@ -249,7 +249,9 @@ func TestAgainstMice(t *testing.T) {
 
 // TestPoolScalar: one quantity pooled on its own is Pool of a one-parameter
 // analysis; identical sets give zero between variance and the set's own
-// normal interval (infinite degrees of freedom).
+// normal interval (infinite degrees of freedom). Against mice's
+// pool.scalar with finite complete-data degrees of freedom:
+// TestRubinAgainstMiceFrozen (nhanes_test.go) and TestAgainstMice.
 func TestPoolScalar(t *testing.T) {
 	q, u := []float64{0.21, 0.26, 0.19, 0.24}, []float64{0.0009, 0.0011, 0.001, 0.0012}
 	s, err := PoolScalar(q, u, 250)
