@@ -180,6 +180,13 @@ func fitValid(d *Data, m Model, opt Options, sh *shared) (*Result, error) {
 	}
 	if start == nil {
 		start = startValues(d, m, ly)
+		// A fit that is not usable from there is made again from the
+		// usual start, so that it reads as it does without the stage.
+		if st, ok := pr.subsampleNewton(sh.subsample(d), start, opt); ok {
+			if res, err := finish(localSource(d, pr), m, ly, st, opt); err == nil && res.OK() {
+				return res, nil
+			}
+		}
 	}
 	st := pr.newton(start, opt.MaxIter, opt.Scoring)
 	return finish(localSource(d, pr), m, ly, st, opt)

@@ -7,8 +7,8 @@ import (
 	"sync"
 )
 
-// shared is what the fits of one data set share: the rank check and the
-// compressed design (each made once), and fitted models that a model with
+// shared is what the fits of one data set share: the rank check, the
+// compressed design and its subsample (each made once), and fitted models that a model with
 // constrained predictors would otherwise fit again to build its starts
 // (its parallel and its partial counterpart: see auxModels).
 type shared struct {
@@ -16,6 +16,8 @@ type shared struct {
 	rankErr  error
 	desOnce  sync.Once
 	des      *design
+	subOnce  sync.Once
+	sub      *design
 	mu       sync.Mutex
 	fitted   map[string]gridFit // by modelKey, options of the auxiliary fits
 }
@@ -36,6 +38,13 @@ func (sh *shared) rank(d *Data) error {
 func (sh *shared) design(d *Data) *design {
 	sh.desOnce.Do(func() { sh.des = d.design().compressed() })
 	return sh.des
+}
+
+// subsample is the fixed subsample of d's compressed design (nil on
+// fewer rows than subsampleAbove), made once.
+func (sh *shared) subsample(d *Data) *design {
+	sh.subOnce.Do(func() { sh.sub = sh.design(d).subsample(d.J) })
+	return sh.sub
 }
 
 // fit is Fit of m on the valid data d with the options o of an auxiliary

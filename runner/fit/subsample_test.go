@@ -1,0 +1,104 @@
+package fit
+
+import (
+	"math"
+	"testing"
+)
+
+// smallSubsample lets the subsample stage run from 20000 rows during a
+// test.
+func smallSubsample(t *testing.T) int {
+	old := subsampleAbove
+	subsampleAbove = 20_000
+	t.Cleanup(func() { subsampleAbove = old })
+	return subsampleAbove
+}
+
+// fitFromUsualStart fits m from the usual starting values given as the
+// user's start, which skips the subsample stage.
+func fitFromUsualStart(t *testing.T, d *Data, m Model) (*Result, error) {
+	t.Helper()
+	ly, err := newLayout(m, d.J, d.Predictors)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return Fit(d, m, Options{Start: startValues(d, m, ly)})
+}
+
+// TestSubsampleStageSameMaximum: on data large enough for the subsample
+// stage, the fit reaches the maximum the usual start reaches (log-
+// likelihood within 1e-9 relative, estimates and standard errors within
+// 1e-7 relative), with fewer full-data iterations, for every comparison,
+// with weights and an offset.
+func TestSubsampleStageSameMaximum(t *testing.T) {
+	d := synthData(77, smallSubsample(t), 3, 4, true, true)
+	for _, c := range allComparisons {
+		m := Model{Comparison: c.cmp, Backward: c.backward, Link: Logit, Effects: []Effect{Nonparallel, Parallel, Parallel}}
+		got, err := Fit(d, m, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		want, err := fitFromUsualStart(t, d, m)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !got.OK() || !want.OK() {
+			t.Fatalf("%s: %s / %s", m.Name(), got.Status, want.Status)
+		}
+		if math.Abs(got.LogLik-want.LogLik) > 1e-9*math.Abs(want.LogLik) {
+			t.Errorf("%s: log-likelihood %.12f, from the usual start %.12f", m.Name(), got.LogLik, want.LogLik)
+		}
+		for i := range want.Estimates {
+			if !near(got.Estimates[i], want.Estimates[i], 1e-7, 1e-9) || !near(got.StdErrors[i], want.StdErrors[i], 1e-7, 1e-9) {
+				t.Errorf("%s %s: %.12g (%.8g), from the usual start %.12g (%.8g)", m.Name(), want.ParamNames[i],
+					got.Estimates[i], got.StdErrors[i], want.Estimates[i], want.StdErrors[i])
+			}
+		}
+		if got.Iterations >= want.Iterations {
+			t.Errorf("%s: %d full-data iterations from the subsample, %d from the usual start", m.Name(), got.Iterations, want.Iterations)
+		}
+	}
+}
+
+// TestSubsampleStageFailureAsBefore: where the subsample lacks a category
+// or the data have no maximum (a predictor that separates a category), the
+// fit is the one from the usual start, field for field.
+func TestSubsampleStageFailureAsBefore(t *testing.T) {
+	n := smallSubsample(t)
+	d := synthData(78, n, 3, 3, false, false)
+	// A fourth category on one row the subsample does not draw.
+	d.J = 4
+	sub := d.design().subsample(3)
+	drawn := map[float64]bool{}
+	for i := 0; i < sub.n; i++ {
+		drawn[sub.x[i*sub.K]] = true
+	}
+	rare := 1000
+	for drawn[d.X[rare*3]] {
+		rare++
+	}
+	d.Y[rare] = 3
+	m := Model{Comparison: Cumulative, Link: Logit, Effects: []Effect{Parallel, Parallel, Parallel}}
+	got, err := Fit(d, m, Options{})
+	want, werr := fitFromUsualStart(t, d, m)
+	if dumpResult(got, err) != dumpResult(want, werr) {
+		t.Errorf("category missing from the subsample:\n%s\n%s", dumpResult(got, err), dumpResult(want, werr))
+	}
+	// Separation: x1 > 0 exactly on the rows of the first category (of
+	// two).
+	d = synthData(79, n, 3, 2, false, false)
+	for i, y := range d.Y {
+		d.X[i*3] = math.Abs(d.X[i*3]) + 0.01
+		if y != 0 {
+			d.X[i*3] = -d.X[i*3]
+		}
+	}
+	got, err = Fit(d, m, Options{})
+	want, werr = fitFromUsualStart(t, d, m)
+	if got == nil || got.Status != StatusNoFiniteMaximum {
+		t.Fatalf("separated data: %s", dumpResult(got, err))
+	}
+	if dumpResult(got, err) != dumpResult(want, werr) {
+		t.Errorf("separated data:\n%s\n%s", dumpResult(got, err), dumpResult(want, werr))
+	}
+}
