@@ -101,6 +101,10 @@ type PatternSplitRecord struct {
 	*fit.PatternSplit
 }
 
+// noCategorical is why the Pulkstenis-Robinson tests are not computed
+// without categorical predictors.
+const noCategorical = "no categorical predictors: the tests group the rows by the levels of the categorical predictors"
+
 // pearsonNote is why Pearson-type statistics are not tests under sampling
 // weights.
 const pearsonNote = "the weights are sampling weights: weighted counts do not follow the multinomial model the chi-square reference assumes"
@@ -121,7 +125,7 @@ func patternSplit(ld *Loaded, r *fit.Result, sampling bool) *PatternSplitRecord 
 		}
 	}
 	if len(cats) == 0 {
-		rec.NotComputed = "no categorical predictors: the tests group the rows by the levels of the categorical predictors"
+		rec.NotComputed = noCategorical
 		return rec
 	}
 	pattern, labels, err := covariatePatterns(ld, cats)

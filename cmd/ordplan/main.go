@@ -155,7 +155,7 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		return fail(stderr, err)
 	}
 	if *f.partitions != "" || *f.queue.url != "" {
-		return fitPartitioned(s, f.queue, splitList(*f.partitions), *f.asJSON, *f.level, stdout, stderr)
+		return fitPartitioned(s, f, splitList(*f.partitions), stdout, stderr)
 	}
 	res, ds, checks, err := runner.FitOneChecked(s)
 	if err != nil {
@@ -165,7 +165,12 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
-	if err := f.print(stdout, res, ds, base, checks); err != nil {
+	drop := ds.DropSummary()
+	for _, n := range ds.Notes {
+		drop += "; " + strings.TrimSuffix(n, ".")
+	}
+	sum := render.DataSummary{File: *f.dataFile, Outcome: *f.outcome, RowsRead: ds.RowsRead, RowsUsed: ds.N, DropSummary: drop}
+	if err := f.print(stdout, res, sum, base, checks); err != nil {
 		return fail(stderr, err)
 	}
 	if !res.OK() {
@@ -307,9 +312,10 @@ func (f *fitFlags) baselineOf(res *fit.Result) (*fit.Baseline, error) {
 	return res.Baseline(ref)
 }
 
-// print writes the fit as one JSON object or as the tables, with the
-// checks of the fit (nil when it has no finite maximum).
-func (f *fitFlags) print(stdout io.Writer, res *fit.Result, ds *data.Dataset, base *fit.Baseline, checks *runner.SingleChecks) error {
+// print writes the fit as one JSON object or as the tables (below the
+// summary of the data sum), with the checks of the fit (nil when it has no
+// finite maximum); a fit over partitions prints through it too.
+func (f *fitFlags) print(stdout io.Writer, res *fit.Result, sum render.DataSummary, base *fit.Baseline, checks *runner.SingleChecks) error {
 	if *f.asJSON {
 		rec := runner.Record(res)
 		out := struct {
@@ -324,11 +330,6 @@ func (f *fitFlags) print(stdout io.Writer, res *fit.Result, ds *data.Dataset, ba
 		_, err = stdout.Write(b)
 		return err
 	}
-	drop := ds.DropSummary()
-	for _, n := range ds.Notes {
-		drop += "; " + strings.TrimSuffix(n, ".")
-	}
-	sum := render.DataSummary{File: *f.dataFile, Outcome: *f.outcome, RowsRead: ds.RowsRead, RowsUsed: ds.N, DropSummary: drop}
 	if err := render.FitTable(stdout, res, sum, *f.level); err != nil {
 		return err
 	}

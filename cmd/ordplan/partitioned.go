@@ -16,7 +16,8 @@ import (
 
 // fitPartitioned fits one model over partition files through queue
 // workers: each Newton evaluation is summed over the partitions.
-func fitPartitioned(s runner.SingleFit, qf *queueFlags, parts []string, asJSON bool, level float64, stdout, stderr io.Writer) int {
+func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, stderr io.Writer) int {
+	qf := f.queue
 	url := *qf.url
 	switch {
 	case url == "":
@@ -56,18 +57,18 @@ func fitPartitioned(s runner.SingleFit, qf *queueFlags, parts []string, asJSON b
 	if err != nil {
 		return fail(stderr, err)
 	}
-	if asJSON {
-		b, err := runner.MarshalStable(runner.Record(res))
-		if err != nil {
-			return fail(stderr, err)
-		}
-		stdout.Write(b)
-	} else {
-		sum := render.DataSummary{File: fmt.Sprintf("%d partitions", len(parts)), Outcome: s.Outcome, RowsRead: read, RowsUsed: whole.Rows,
-			DropSummary: fmt.Sprintf("%d rows dropped for missing values or zero weight", read-whole.Rows)}
-		if err := render.FitTable(stdout, res, sum, level); err != nil {
-			return fail(stderr, err)
-		}
+	checks, err := runner.PartitionedChecks(s, res, parts, whole)
+	if err != nil {
+		return fail(stderr, err)
+	}
+	base, err := f.baselineOf(res)
+	if err != nil {
+		return fail(stderr, err)
+	}
+	sum := render.DataSummary{File: fmt.Sprintf("%d partitions", len(parts)), Outcome: s.Outcome, RowsRead: read, RowsUsed: whole.Rows,
+		DropSummary: fmt.Sprintf("%d rows dropped for missing values or zero weight", read-whole.Rows)}
+	if err := f.print(stdout, res, sum, base, checks); err != nil {
+		return fail(stderr, err)
 	}
 	if !res.OK() {
 		return exitFail

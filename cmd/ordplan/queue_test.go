@@ -9,6 +9,7 @@ import (
 	"os/exec"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 	"syscall"
@@ -363,6 +364,53 @@ func TestFitPartitionsThroughWorkers(t *testing.T) {
 	for n, v := range a.Estimates {
 		if math.Abs(v-b.Estimates[n]) > 1e-8 || math.Abs(a.StdErrors[n]-b.StdErrors[n]) > 1e-8 {
 			t.Errorf("%s: %v (%v) vs %v (%v)", n, v, a.StdErrors[n], b.Estimates[n], b.StdErrors[n])
+		}
+	}
+	// The checks: the same lines as the local fit's (the thresholds-only
+	// model, the LR test, the pseudo-R2 with McKelvey-Zavoina for the
+	// parallel model), but the Lipsitz test, which needs every row in
+	// one place and says so.
+	for _, extra := range [][]string{{"--nonparallel", "yr89,male"}, {"--baseline", "1", "--approach", "adjacent", "--all-nonparallel"}, nil} {
+		text := append(slices.Clone(args[:len(args)-3]), extra...)
+		local, errs, code := runCLI(append(text, "--data", filepath.Join(refDir, "gsswarm.csv"))...)
+		if code != 0 {
+			t.Fatal(errs)
+		}
+		dist, errs, code := runCLI(append(text, "--queue", url, "--partitions", strings.Join(parts, ","))...)
+		if code != 0 {
+			t.Fatalf("%v: exit %d: %s", extra, code, errs)
+		}
+		lines := func(out string) (same []string, lipsitz string) {
+			for _, l := range strings.Split(out, "\n") {
+				switch {
+				case strings.HasPrefix(l, "Lipsitz test"):
+					lipsitz = l
+				case strings.HasPrefix(l, "Data ") || strings.HasPrefix(l, "Status "): // the files; Newton's path
+				default:
+					same = append(same, l)
+				}
+			}
+			return same, lipsitz
+		}
+		ls, llz := lines(local)
+		ds, dlz := lines(dist)
+		if strings.Join(ls, "\n") != strings.Join(ds, "\n") {
+			t.Errorf("%v: the partitioned fit prints otherwise than the local one:\n%s\n---\n%s", extra, local, dist)
+		}
+		if !strings.HasPrefix(llz, "Lipsitz test (10 groups of predicted score): chi2(9) = ") ||
+			dlz != "Lipsitz test: not tested: not computed for a fit over partitions: the test refits the model with indicators of groups of predicted score, which needs every row in one place" {
+			t.Errorf("%v: Lipsitz lines %q and %q", extra, llz, dlz)
+		}
+		for _, want := range []string{"Against the thresholds-only model (log-likelihood ", "LR chi2(", "Pseudo-R2: McFadden "} {
+			if !strings.Contains(dist, want) {
+				t.Errorf("%v: the partitioned fit lacks %q:\n%s", extra, want, dist)
+			}
+		}
+		if extra == nil && !strings.Contains(dist, ", McKelvey-Zavoina 0.") {
+			t.Errorf("no McKelvey-Zavoina for the parallel model:\n%s", dist)
+		}
+		if extra != nil && extra[0] == "--baseline" && !strings.Contains(dist, "Baseline-category form") {
+			t.Errorf("no baseline table over partitions:\n%s", dist)
 		}
 	}
 }

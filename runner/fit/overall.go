@@ -145,6 +145,17 @@ type Overall struct {
 // OverallFit compares fit r with its thresholds-only fit null on data d
 // (the rows r was fitted to; used for the McKelvey-Zavoina variance).
 func OverallFit(d *Data, r, null *Result) Overall {
+	var s EtaSpread
+	if d != nil && d.N() > 0 && len(d.Predictors) == len(r.Predictors) {
+		s.Add(d, r)
+	}
+	return OverallFitSpread(r, null, &s)
+}
+
+// OverallFitSpread is OverallFit with the spread of the linear predictor
+// over the rows gathered beforehand (by parts, for a fit summed over
+// partitions); an empty spread leaves McKelvey-Zavoina out.
+func OverallFitSpread(r, null *Result, s *EtaSpread) Overall {
 	o := Overall{NullLogLik: math.NaN(), McFadden: math.NaN(), CoxSnell: math.NaN(), Nagelkerke: math.NaN(), McKelveyZavoina: math.NaN()}
 	if null != nil && null.OK() {
 		o.NullLogLik = null.LogLik
@@ -160,8 +171,41 @@ func OverallFit(d *Data, r, null *Result) Overall {
 	// Cox-Snell: 1 - (L0/L)^(2/N); its largest value 1 - L0^(2/N).
 	o.CoxSnell = -math.Expm1(2 * (ll0 - ll) / n)
 	o.Nagelkerke = o.CoxSnell / -math.Expm1(2*ll0/n)
-	o.McKelveyZavoina, o.MZNote = mckelveyZavoina(d, r)
+	o.McKelveyZavoina, o.MZNote = mckelveyZavoina(r, s)
 	return o
+}
+
+// EtaSpread is the weighted mean and sum of squared deviations of the
+// linear predictor eta = x'b + offset over rows (divisor: the sum of
+// weights), gathered part by part.
+type EtaSpread struct {
+	W, Mean, M2 float64
+}
+
+// Add gathers the rows of d (their weights, offset) at the equation-1
+// slopes of r, by West's weighted update of the mean and sum of squares.
+func (s *EtaSpread) Add(d *Data, r *Result) {
+	K := len(r.Predictors)
+	for i := 0; i < d.N(); i++ {
+		w := 1.0
+		if d.Weights != nil {
+			w = d.Weights[i]
+		}
+		if w == 0 {
+			continue
+		}
+		eta := 0.0
+		for k := 0; k < K; k++ {
+			eta += d.X[i*K+k] * r.Effects[0][k]
+		}
+		if d.Offset != nil {
+			eta += d.Offset[i]
+		}
+		s.W += w
+		delta := eta - s.Mean
+		s.Mean += w / s.W * delta
+		s.M2 += w * delta * (eta - s.Mean)
+	}
 }
 
 // LinkVariance is the variance of the distribution whose distribution
@@ -179,9 +223,9 @@ func LinkVariance(l Link) (float64, bool) {
 	return math.NaN(), false
 }
 
-// mckelveyZavoina is var(eta) / (var(eta) + var(e)) with eta = x'b +
-// offset over the rows of d (weighted, divisor the sum of weights).
-func mckelveyZavoina(d *Data, r *Result) (float64, string) {
+// mckelveyZavoina is var(eta) / (var(eta) + var(e)) with the spread of
+// eta = x'b + offset over the rows of the fit.
+func mckelveyZavoina(r *Result, s *EtaSpread) (float64, string) {
 	if r.Model.Comparison != Cumulative {
 		return math.NaN(), "defined for cumulative models only (one latent variable)"
 	}
@@ -194,32 +238,9 @@ func mckelveyZavoina(d *Data, r *Result) (float64, string) {
 	if !ok {
 		return math.NaN(), "the Cauchy distribution has no variance"
 	}
-	if d == nil || d.N() == 0 || len(d.Predictors) != len(r.Predictors) {
+	if s == nil || s.W == 0 {
 		return math.NaN(), "data not available"
 	}
-	K := len(r.Predictors)
-	var sw, mean, m2 float64
-	for i := 0; i < d.N(); i++ {
-		w := 1.0
-		if d.Weights != nil {
-			w = d.Weights[i]
-		}
-		if w == 0 {
-			continue
-		}
-		eta := 0.0
-		for k := 0; k < K; k++ {
-			eta += d.X[i*K+k] * r.Effects[0][k]
-		}
-		if d.Offset != nil {
-			eta += d.Offset[i]
-		}
-		// West's weighted update of the mean and sum of squares.
-		sw += w
-		delta := eta - mean
-		mean += w / sw * delta
-		m2 += w * delta * (eta - mean)
-	}
-	v := m2 / sw
+	v := s.M2 / s.W
 	return v / (v + ve), ""
 }

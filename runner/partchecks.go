@@ -1,0 +1,60 @@
+package runner
+
+import (
+	"ordplan/runner/data"
+	"ordplan/runner/fit"
+)
+
+// lipsitzOverParts is why a fit summed over partitions has no Lipsitz
+// test.
+const lipsitzOverParts = "not computed for a fit over partitions: the test refits the model with indicators of groups of predicted score, which needs every row in one place"
+
+// PartitionedChecks gives the checks of a fit summed over the partition
+// files parts (whole: what the parts hold together), as FitOneChecked
+// gives them for one file, reading one part at a time: the thresholds-only
+// model is fitted to the category counts (without an offset its maximum
+// reproduces the observed shares, as the fit to the rows does), the
+// spread of the linear predictor for McKelvey-Zavoina is gathered part by
+// part, and the Lipsitz test, which refits on every row, is said not to be
+// computed. Partitioned fits have no categorical predictors, so the
+// Pulkstenis-Robinson tests are not computed either, as for one file.
+func PartitionedChecks(s SingleFit, res *fit.Result, parts []string, whole fit.Whole) (*SingleChecks, error) {
+	if res == nil || !res.OK() {
+		return nil, nil
+	}
+	a, err := ResolveFit(s)
+	if err != nil {
+		return nil, err
+	}
+	dopt := a.Outcomes[0].Options
+	var null *fit.Result
+	if dopt.Offset == "" {
+		counts := &fit.Data{J: whole.J, Categories: whole.Categories}
+		for j, c := range whole.Counts {
+			if c > 0 {
+				counts.Y = append(counts.Y, j)
+				counts.Weights = append(counts.Weights, c)
+			}
+		}
+		if null, err = fit.FitNull(counts, res.Model, a.Fit); err != nil {
+			return nil, err
+		}
+	}
+	var spread fit.EtaSpread
+	for _, p := range parts {
+		ds, err := data.Load(p, dopt)
+		if err != nil {
+			return nil, err
+		}
+		spread.Add(FitData(ds), res)
+	}
+	o := fit.OverallFitSpread(res, null, &spread)
+	if null == nil {
+		o.LR = fit.Test{Name: o.LR.Name, Reason: "not computed for a fit over partitions with an offset: the thresholds-only model would have to be fitted over the partitions too"}
+	}
+	return &SingleChecks{
+		Overall:      OverallRecord{Model: res.Name, Null: fit.ModelID(res.Model.ComparisonName(), "thresholds-only", res.Model.Link), Overall: o},
+		Lipsitz:      &fit.Lipsitz{Test: fit.Test{Name: "lipsitz", Reason: lipsitzOverParts}},
+		PatternSplit: &PatternSplitRecord{Predictors: []string{}, NotComputed: noCategorical},
+	}, nil
+}
