@@ -74,10 +74,7 @@ func toSemicolonComma(b []byte) []byte {
 // decisions.json through ordplan run; check suggests the dialect keys
 // when they are missing.
 func TestDialectsGiveIdenticalDecisions(t *testing.T) {
-	raw, err := os.ReadFile(filepath.Join("..", "..", "plans", "data", "quietstreets.csv"))
-	if err != nil {
-		t.Fatal(err)
-	}
+	raw := exampleData(t, "quietstreets.csv")
 	semi := semicolonCopy(t, raw)
 	var outs [][]byte
 	for i, c := range []struct {
@@ -88,30 +85,7 @@ func TestDialectsGiveIdenticalDecisions(t *testing.T) {
 		{semi, "  delimiter: semicolon\n  decimal: comma\n"},
 	} {
 		dir := t.TempDir()
-		if err := os.WriteFile(filepath.Join(dir, "d.csv"), c.data, 0o644); err != nil {
-			t.Fatal(err)
-		}
-		p := dialectPlan(t, dir, "d.csv", c.extra)
-		out := filepath.Join(dir, "out")
-		stdout, stderr, code := runCLI("run", p, "--out", out, "--quiet")
-		if code != 0 {
-			t.Fatalf("case %d: exit %d: %s %s", i, code, stdout, stderr)
-		}
-		b, err := os.ReadFile(filepath.Join(out, "decisions.json"))
-		if err != nil {
-			t.Fatal(err)
-		}
-		// The hashes are those of the bytes as read: the data file's own,
-		// and the plan's (whose dialect keys differ); all else is equal.
-		sum := sha256.Sum256(c.data)
-		hashes := []string{hex.EncodeToString(sum[:]), planHash(t, p)}
-		for _, h := range hashes {
-			if !bytes.Contains(b, []byte(`"sha256": "`+h+`"`)) {
-				t.Errorf("case %d: decisions.json lacks the hash %s", i, h)
-			}
-			b = bytes.ReplaceAll(b, []byte(h), []byte("HASH"))
-		}
-		outs = append(outs, b)
+		outs = append(outs, dialectDecisions(t, dir, "d.csv", c.data, c.extra))
 		if i == 1 {
 			// Without the keys, check says what the file looks like.
 			p := dialectPlan(t, dir, "d.csv", "")
@@ -128,9 +102,62 @@ func TestDialectsGiveIdenticalDecisions(t *testing.T) {
 			}
 		}
 	}
-	if !bytes.Equal(outs[0], outs[1]) {
-		t.Errorf("decisions.json differs between the comma/point and semicolon/comma files")
+	sameDecisions(t, "the comma/point and semicolon/comma files", outs[0], outs[1])
+}
+
+// exampleData reads a file of the bundled example data (plans/data).
+func exampleData(t *testing.T, name string) []byte {
+	t.Helper()
+	b, err := os.ReadFile(filepath.Join("..", "..", "plans", "data", name))
+	if err != nil {
+		t.Fatal(err)
 	}
+	return b
+}
+
+// dialectDecisions writes data as dir/file, runs dialectPlan on it (extra
+// under data) and returns its decisions.json with the hashes of the bytes
+// as read, the data file's own and the plan's, replaced by HASH (each
+// checked to be there) and the file's name by FILE: what must not depend
+// on how the same data are written.
+func dialectDecisions(t *testing.T, dir, file string, data []byte, extra string) []byte {
+	t.Helper()
+	if err := os.WriteFile(filepath.Join(dir, file), data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	p := dialectPlan(t, dir, file, extra)
+	out := filepath.Join(dir, "out")
+	if stdout, stderr, code := runCLI("run", p, "--out", out, "--quiet"); code != 0 {
+		t.Fatalf("%s: exit %d: %s %s", file, code, stdout, stderr)
+	}
+	b, err := os.ReadFile(filepath.Join(out, "decisions.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, h := range []string{HashHex(data), planHash(t, p)} {
+		if !bytes.Contains(b, []byte(`"sha256": "`+h+`"`)) {
+			t.Errorf("%s: decisions.json lacks the hash %s", file, h)
+		}
+		b = bytes.ReplaceAll(b, []byte(h), []byte("HASH"))
+	}
+	return bytes.ReplaceAll(b, []byte(file), []byte("FILE"))
+}
+
+// sameDecisions fails the test when two decisions.json differ, showing
+// the first line that does.
+func sameDecisions(t *testing.T, what string, a, b []byte) {
+	t.Helper()
+	if bytes.Equal(a, b) {
+		return
+	}
+	la, lb := strings.Split(string(a), "\n"), strings.Split(string(b), "\n")
+	for i := 0; i < min(len(la), len(lb)); i++ {
+		if la[i] != lb[i] {
+			t.Errorf("decisions.json differs between %s: line %d is\n%s\nagainst\n%s", what, i+1, la[i], lb[i])
+			return
+		}
+	}
+	t.Errorf("decisions.json differs between %s: %d lines against %d", what, len(la), len(lb))
 }
 
 func semicolonCopy(t *testing.T, raw []byte) []byte {
@@ -185,48 +212,10 @@ func toWorkbook(t *testing.T, raw []byte) []byte {
 // row) give byte-identical decisions.json through ordplan run, but for
 // the hashes of the files as read.
 func TestWorkbookGivesIdenticalDecisions(t *testing.T) {
-	raw, err := os.ReadFile(filepath.Join("..", "..", "plans", "data", "quietstreets.csv"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	var outs [][]byte
-	for i, c := range []struct {
-		name  string
-		data  []byte
-		extra string
-	}{
-		{"d.csv", raw, "  sheet: survey\n  header_row: 1\n"},
-		{"d.xlsx", toWorkbook(t, raw), "  sheet: survey\n  header_row: 3\n"},
-	} {
-		dir := t.TempDir()
-		if err := os.WriteFile(filepath.Join(dir, c.name), c.data, 0o644); err != nil {
-			t.Fatal(err)
-		}
-		p := dialectPlan(t, dir, c.name, c.extra)
-		out := filepath.Join(dir, "out")
-		stdout, stderr, code := runCLI("run", p, "--out", out, "--quiet")
-		if code != 0 {
-			t.Fatalf("case %d: exit %d: %s %s", i, code, stdout, stderr)
-		}
-		b, err := os.ReadFile(filepath.Join(out, "decisions.json"))
-		if err != nil {
-			t.Fatal(err)
-		}
-		sum := sha256.Sum256(c.data)
-		for _, h := range []string{hex.EncodeToString(sum[:]), planHash(t, p)} {
-			if !bytes.Contains(b, []byte(`"sha256": "`+h+`"`)) {
-				t.Errorf("case %d: decisions.json lacks the hash %s", i, h)
-			}
-			b = bytes.ReplaceAll(b, []byte(h), []byte("HASH"))
-		}
-		b = bytes.ReplaceAll(b, []byte(c.name), []byte("FILE"))
-		outs = append(outs, b)
-	}
-	if !bytes.Equal(outs[0], outs[1]) {
-		os.WriteFile("/tmp/wA.json", outs[0], 0o644)
-		os.WriteFile("/tmp/wB.json", outs[1], 0o644)
-		t.Errorf("decisions.json differs between the CSV file and the workbook")
-	}
+	raw := exampleData(t, "quietstreets.csv")
+	csv := dialectDecisions(t, t.TempDir(), "d.csv", raw, "  sheet: survey\n  header_row: 1\n")
+	book := dialectDecisions(t, t.TempDir(), "d.xlsx", toWorkbook(t, raw), "  sheet: survey\n  header_row: 3\n")
+	sameDecisions(t, "the CSV file and the workbook", csv, book)
 }
 
 // toParquet writes a CSV file as a flat Parquet file: columns whose cells
@@ -289,53 +278,16 @@ func toParquet(t *testing.T, raw []byte) []byte {
 // The same data in CSV and Parquet give byte-identical decisions.json
 // through ordplan run, but for the hashes of the files as read.
 func TestParquetGivesIdenticalDecisions(t *testing.T) {
-	raw, err := os.ReadFile(filepath.Join("..", "..", "plans", "data", "quietstreets.csv"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	var outs [][]byte
-	for i, c := range []struct {
-		name string
-		data []byte
-	}{{"d.csv", raw}, {"d.parquet", toParquet(t, raw)}} {
-		dir := t.TempDir()
-		if err := os.WriteFile(filepath.Join(dir, c.name), c.data, 0o644); err != nil {
-			t.Fatal(err)
-		}
-		p := dialectPlan(t, dir, c.name, "")
-		out := filepath.Join(dir, "out")
-		stdout, stderr, code := runCLI("run", p, "--out", out, "--quiet")
-		if code != 0 {
-			t.Fatalf("case %d: exit %d: %s %s", i, code, stdout, stderr)
-		}
-		b, err := os.ReadFile(filepath.Join(out, "decisions.json"))
-		if err != nil {
-			t.Fatal(err)
-		}
-		sum := sha256.Sum256(c.data)
-		for _, h := range []string{hex.EncodeToString(sum[:]), planHash(t, p)} {
-			if !bytes.Contains(b, []byte(`"sha256": "`+h+`"`)) {
-				t.Errorf("case %d: decisions.json lacks the hash %s", i, h)
-			}
-			b = bytes.ReplaceAll(b, []byte(h), []byte("HASH"))
-		}
-		b = bytes.ReplaceAll(b, []byte(c.name), []byte("FILE"))
-		outs = append(outs, b)
-	}
-	if !bytes.Equal(outs[0], outs[1]) {
-		os.WriteFile("/tmp/pA.json", outs[0], 0o644)
-		os.WriteFile("/tmp/pB.json", outs[1], 0o644)
-		t.Errorf("decisions.json differs between the CSV file and the Parquet file")
-	}
+	raw := exampleData(t, "quietstreets.csv")
+	csv := dialectDecisions(t, t.TempDir(), "d.csv", raw, "")
+	pq := dialectDecisions(t, t.TempDir(), "d.parquet", toParquet(t, raw), "")
+	sameDecisions(t, "the CSV file and the Parquet file", csv, pq)
 }
 
 // ordplan fit --sheet and --header-row read a workbook as the plan keys
 // data.sheet and data.header_row do: the same fit as from the CSV file.
 func TestFitSheetFlags(t *testing.T) {
-	raw, err := os.ReadFile(filepath.Join("..", "..", "plans", "data", "quietstreets.csv"))
-	if err != nil {
-		t.Fatal(err)
-	}
+	raw := exampleData(t, "quietstreets.csv")
 	dir := t.TempDir()
 	book := filepath.Join(dir, "d.xlsx")
 	if err := os.WriteFile(book, toWorkbook(t, raw), 0o644); err != nil {
@@ -369,14 +321,8 @@ func TestFitSheetFlags(t *testing.T) {
 // the CSV file (and a workbook's rows are read from the data's sheet and
 // header row).
 func TestNewRowsInEveryFormat(t *testing.T) {
-	raw, err := os.ReadFile(filepath.Join("..", "..", "plans", "data", "quietstreets.csv"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	nr, err := os.ReadFile(filepath.Join("..", "..", "plans", "data", "newrows.csv"))
-	if err != nil {
-		t.Fatal(err)
-	}
+	raw := exampleData(t, "quietstreets.csv")
+	nr := exampleData(t, "newrows.csv")
 	var want map[string][]string
 	for i, c := range []struct {
 		name  string
@@ -452,10 +398,7 @@ func columnsByName(t *testing.T, b []byte) map[string][]string {
 // but for the data's record: each part with its hash, and the hash of
 // their hashes.
 func TestPartsGiveIdenticalDecisions(t *testing.T) {
-	raw, err := os.ReadFile(filepath.Join("..", "..", "plans", "data", "quietstreets.csv"))
-	if err != nil {
-		t.Fatal(err)
-	}
+	raw := exampleData(t, "quietstreets.csv")
 	lines := strings.Split(strings.TrimSpace(string(raw)), "\n")
 	head, rows := lines[0], lines[1:]
 	n := len(rows)
@@ -528,9 +471,5 @@ func TestPartsGiveIdenticalDecisions(t *testing.T) {
 	}
 	want := run("all.csv", "  sheet: survey\n  header_row: 3\n")
 	got := run("", "  parts: [parts/*.csv, extra/p4.parquet, extra/p5.xlsx]\n  sheet: survey\n  header_row: 3\n")
-	if !bytes.Equal(got, want) {
-		os.WriteFile("/tmp/partsA.json", want, 0o644)
-		os.WriteFile("/tmp/partsB.json", got, 0o644)
-		t.Errorf("decisions.json differs between the parts and the concatenated file (see /tmp/partsA.json, /tmp/partsB.json)")
-	}
+	sameDecisions(t, "the concatenated file and the parts", want, got)
 }
