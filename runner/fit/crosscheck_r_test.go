@@ -508,19 +508,7 @@ func testRFrequencyWeights(t *testing.T) {
 func testRStage(t *testing.T) {
 	a := newAgreement(t)
 	defer a.report()
-	dir := workDir(t)
-	names, cols := simFourCategories()
-	rscript.WriteCSV(t, filepath.Join(dir, "sim4.csv"), names, cols)
-	vals := rscript.Run(t, dir, rfile("common.R"), rfile("stage.R"))
-	es := rscript.ReadCSV(t, filepath.Join(dir, "esoph.csv"))
-	sim := rscript.ReadCSV(t, filepath.Join(dir, "sim4.csv"))
-	sets := []struct {
-		name string
-		d    *fit.Data
-	}{
-		{"esoph", dataFrom(t, es, "alcgp", 1, 4, []string{"agegp", "tobgp", "case"}, "w")},
-		{"sim4", dataFrom(t, sim, "y", 1, 4, []string{"x1", "x2", "x3"}, "")},
-	}
+	vals, sets := fourCategorySets(t, "stage.R")
 	for _, s := range sets {
 		for _, l := range rLinks {
 			for _, dir := range []string{"forward", "backward"} {
@@ -543,6 +531,31 @@ func testRStage(t *testing.T) {
 	}
 }
 
+// namedData is a data set of a cross-check with its name in the script's
+// output.
+type namedData struct {
+	name string
+	d    *fit.Data
+}
+
+// fourCategorySets runs common.R and script on the four-category data
+// sets, which it returns: R's esoph with the alcohol group as the outcome
+// (predictors the agegp and tobgp scores and case status, weighted by the
+// number of subjects), written by the script, and simFourCategories.
+func fourCategorySets(t *testing.T, script string) (rscript.Values, []namedData) {
+	t.Helper()
+	dir := workDir(t)
+	names, cols := simFourCategories()
+	rscript.WriteCSV(t, filepath.Join(dir, "sim4.csv"), names, cols)
+	vals := rscript.Run(t, dir, rfile("common.R"), rfile(script))
+	es := rscript.ReadCSV(t, filepath.Join(dir, "esoph.csv"))
+	sim := rscript.ReadCSV(t, filepath.Join(dir, "sim4.csv"))
+	return vals, []namedData{
+		{"esoph", dataFrom(t, es, "alcgp", 1, 4, []string{"agegp", "tobgp", "case"}, "w")},
+		{"sim4", dataFrom(t, sim, "y", 1, 4, []string{"x1", "x2", "x3"}, "")},
+	}
+}
+
 // testRMultinomial: the adjacent-category logit with every effect
 // nonparallel is the multinomial logit reparameterized: same
 // log-likelihood, and its baseline-category form (Result.Baseline) equals
@@ -559,19 +572,7 @@ func testRMultinomial(t *testing.T) {
 	}
 	a := newAgreement(t)
 	defer a.report()
-	dir := workDir(t)
-	names, cols := simFourCategories()
-	rscript.WriteCSV(t, filepath.Join(dir, "sim4.csv"), names, cols)
-	vals := rscript.Run(t, dir, rfile("common.R"), rfile("multinom.R"))
-	es := rscript.ReadCSV(t, filepath.Join(dir, "esoph.csv"))
-	sim := rscript.ReadCSV(t, filepath.Join(dir, "sim4.csv"))
-	sets := []struct {
-		name string
-		d    *fit.Data
-	}{
-		{"esoph", dataFrom(t, es, "alcgp", 1, 4, []string{"agegp", "tobgp", "case"}, "w")},
-		{"sim4", dataFrom(t, sim, "y", 1, 4, []string{"x1", "x2", "x3"}, "")},
-	}
+	vals, sets := fourCategorySets(t, "multinom.R")
 	for _, s := range sets {
 		m := parallelModel(fit.Adjacent, false, fit.Logit, len(s.d.Predictors), fit.Nonparallel)
 		label := s.name + " adjacent nonparallel logit (nnet::multinom)"
