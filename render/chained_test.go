@@ -2,15 +2,11 @@ package render
 
 import (
 	"fmt"
-	"math"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
-
-	"ordplan/plan"
-	"ordplan/runner"
 )
 
 // TestChainedReport: a run that imputes by chained equations states the
@@ -23,14 +19,7 @@ func TestChainedReport(t *testing.T) {
 	var b strings.Builder
 	b.WriteString("y,x1,x2\n")
 	for i := 0; i < 200; i++ {
-		x1 := rng.NormFloat64()
-		x2 := 0.5*x1 + rng.NormFloat64()
-		eta, u, y := 0.8*x1-0.5*x2, rng.Float64(), 1
-		for _, c := range []float64{-0.4, 0.9} {
-			if u > 1/(1+math.Exp(-(c-eta))) {
-				y++
-			}
-		}
+		y, x1, x2 := surveyRow(rng)
 		if rng.Float64() < 0.1*float64(y) {
 			fmt.Fprintf(&b, "%d,%.5f,\n", y, x1)
 		} else {
@@ -50,19 +39,7 @@ rules:
   - choose: {by: bic}
 `
 	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644)
-	p, err := plan.Load(filepath.Join(dir, "p.yaml"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	res, err := runner.Run(p, runner.Options{Workers: 2})
-	if err != nil {
-		t.Fatal(err)
-	}
-	files, err := Outputs(res, runner.BuildDecisions(res), nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	md := string(files["report.md"])
+	md := string(renderPlan(t, filepath.Join(dir, "p.yaml"), 2)["report.md"])
 	for _, want := range []string{
 		"imputed by this run from `d.csv`, as described below",
 		"The imputed sets were made by this run by chained equations (fully conditional specification; van Buuren 2018): 3 sets, each after 2 iterations through the incomplete columns, with seed 5",

@@ -2,15 +2,11 @@ package render
 
 import (
 	"fmt"
-	"math"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
-
-	"ordplan/plan"
-	"ordplan/runner"
 )
 
 // runImputed runs an invented survey (seeded) on four stacked imputed
@@ -32,14 +28,7 @@ func runImputed(t *testing.T) map[string][]byte {
 	}
 	rows := make([]row, n)
 	for i := range rows {
-		x1 := rng.NormFloat64()
-		x2 := 0.5*x1 + rng.NormFloat64()
-		eta, u, y := 0.8*x1-0.5*x2, rng.Float64(), 1
-		for _, c := range []float64{-0.4, 0.9} {
-			if u > 1/(1+math.Exp(-(c-eta))) {
-				y++
-			}
-		}
+		y, x1, x2 := surveyRow(rng)
 		rows[i] = row{y, x1, x2, rng.Float64() < 0.25}
 		if rows[i].miss {
 			fmt.Fprintf(&orig, "%d,%.5f,\n", y, x1)
@@ -73,20 +62,7 @@ inference:
   predict: new.csv
 `
 	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644)
-	p, err := plan.Load(filepath.Join(dir, "p.yaml"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	res, err := runner.Run(p, runner.Options{Workers: 2})
-	if err != nil {
-		t.Fatal(err)
-	}
-	res.GoVersion, res.Platform = "go (test)", "os/arch (test)"
-	files, err := Outputs(res, runner.BuildDecisions(res), nil)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return files
+	return renderPlan(t, filepath.Join(dir, "p.yaml"), 2)
 }
 
 // TestImputedReport: on imputed data the report shows the pooled marginal

@@ -4,7 +4,6 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
-	"path/filepath"
 	"regexp"
 	"strings"
 	"testing"
@@ -146,7 +145,7 @@ var drawCall = regexp.MustCompile(`(?m)^ordplanDraw\("(chart-\d+)",(.*)\);$`)
 // library is inline, nothing is fetched, and report.md has a note for
 // every chart group.
 func TestHTMLIsSelfContained(t *testing.T) {
-	files := runGolden(t, 2)
+	files := renderPlan(t, goldenPlan, 2)
 	page, md := string(files["report.html"]), string(files["report.md"])
 	divs := regexp.MustCompile(`<div class="chart" id="(chart-\d+)"`).FindAllStringSubmatch(page, -1)
 	calls := drawCall.FindAllStringSubmatch(page, -1)
@@ -234,14 +233,7 @@ func TestCategoryPaletteLightToDark(t *testing.T) {
 // is named as such in the chosen model's heading and in the methods
 // paragraph, not only in the decision log.
 func TestFallbackNamedWhereTheChosenModelIs(t *testing.T) {
-	p, err := plan.Load(filepath.Join("testdata", "golden.yaml"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	res, err := runner.Run(p, runner.Options{Workers: 2})
-	if err != nil {
-		t.Fatal(err)
-	}
+	res := runPlan(t, goldenPlan, 2)
 	or := res.Outcomes[0]
 	if or.Chosen == nil {
 		t.Fatal("the golden plan chose no model")

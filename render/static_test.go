@@ -1,12 +1,10 @@
 package render
 
 import (
-	"path/filepath"
 	"testing"
 
 	"gonum.org/v1/plot/vg"
 
-	"ordplan/plan"
 	"ordplan/runner"
 )
 
@@ -16,14 +14,7 @@ import (
 // lies inside the image, does not overlap the data area, and covers no
 // data point or line vertex.
 func TestLegendsClearOfData(t *testing.T) {
-	p, err := plan.Load(filepath.Join("testdata", "golden.yaml"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	res, err := runner.Run(p, runner.Options{Workers: 2})
-	if err != nil {
-		t.Fatal(err)
-	}
+	res := runPlan(t, goldenPlan, 2)
 	figs := map[string]*figure{}
 	for _, c := range build(res, runner.BuildDecisions(res), nil).allCharts() {
 		if c.static != nil {

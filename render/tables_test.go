@@ -4,32 +4,18 @@ import (
 	"bytes"
 	"encoding/csv"
 	"math"
-	"path/filepath"
 	"regexp"
 	"strconv"
 	"strings"
 	"testing"
-
-	"ordplan/plan"
-	"ordplan/runner"
 )
 
 // TestTableFiles: every table file of the golden run is CSV with one
 // header and rows of the same width, is listed in the report, and the
 // estimates file holds the chosen model's estimates to full precision.
 func TestTableFiles(t *testing.T) {
-	p, err := plan.Load(filepath.Join("testdata", "golden.yaml"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	res, err := runner.Run(p, runner.Options{Workers: 2})
-	if err != nil {
-		t.Fatal(err)
-	}
-	files, err := Outputs(res, runner.BuildDecisions(res), nil)
-	if err != nil {
-		t.Fatal(err)
-	}
+	res := runPlan(t, goldenPlan, 2)
+	files := outputsOf(t, res)
 	md := string(files["report.md"])
 	want := []string{"descriptives", "models", "estimates", "odds-ratios", "tests", "decision-log", "marginal-effects", "predicted", "calibration"}
 	for _, kind := range want {
@@ -74,7 +60,7 @@ func TestTableFiles(t *testing.T) {
 // TestMarkdownFigures: every image report.md references is among the files
 // of the run, is an SVG document, and every chart of report.html has one.
 func TestMarkdownFigures(t *testing.T) {
-	files := runGolden(t, 2)
+	files := renderPlan(t, goldenPlan, 2)
 	md := string(files["report.md"])
 	refs := regexp.MustCompile(`!\[[^\]]*\]\(([^)]+)\)`).FindAllStringSubmatch(md, -1)
 	charts := len(regexp.MustCompile(`<div class="chart" id="chart-`).FindAllString(string(files["report.html"]), -1))

@@ -1,0 +1,64 @@
+package render
+
+import (
+	"math"
+	"math/rand/v2"
+	"path/filepath"
+	"testing"
+
+	"ordplan/plan"
+	"ordplan/runner"
+)
+
+// goldenPlan is the plan of the golden report.
+var goldenPlan = filepath.Join("testdata", "golden.yaml")
+
+// runPlan loads and runs the plan at path as `ordplan run` does, with the
+// build environment the report shows fixed, so that the output does not
+// depend on the Go release or the machine.
+func runPlan(t *testing.T, path string, workers int) *runner.Result {
+	t.Helper()
+	p, err := plan.Load(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := runner.Run(p, runner.Options{Workers: workers})
+	if err != nil {
+		t.Fatal(err)
+	}
+	res.GoVersion, res.Platform = "go (test)", "os/arch (test)"
+	return res
+}
+
+// renderPlan runs the plan at path (runPlan) and returns the files the
+// run writes.
+func renderPlan(t *testing.T, path string, workers int) map[string][]byte {
+	t.Helper()
+	return outputsOf(t, runPlan(t, path, workers))
+}
+
+// outputsOf renders a run: the files it writes.
+func outputsOf(t *testing.T, res *runner.Result) map[string][]byte {
+	t.Helper()
+	files, err := Outputs(res, runner.BuildDecisions(res), nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return files
+}
+
+// surveyRow draws a row of an invented survey: x1 standard normal, x2 =
+// 0.5 x1 + a standard normal, and y in 1..3 from a cumulative logit with
+// linear predictor 0.8 x1 - 0.5 x2 and cutpoints -0.4 and 0.9.
+func surveyRow(rng *rand.Rand) (y int, x1, x2 float64) {
+	x1 = rng.NormFloat64()
+	x2 = 0.5*x1 + rng.NormFloat64()
+	eta, u := 0.8*x1-0.5*x2, rng.Float64()
+	y = 1
+	for _, c := range []float64{-0.4, 0.9} {
+		if u > 1/(1+math.Exp(-(c-eta))) {
+			y++
+		}
+	}
+	return y, x1, x2
+}
