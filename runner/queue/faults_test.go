@@ -55,15 +55,10 @@ func storeFirstAndLate(t *testing.T, ctx context.Context, c *Client, path string
 // The first reply to a job wins: a worker's duplicate, a later overwrite
 // and entries of unknown runs or keys are ignored.
 func TestDuplicateAndForeignRepliesIgnored(t *testing.T) {
-	ctx := testContext(t, 60*time.Second)
-	url := localserver.ForTest(t)
-	c := connect(t, ctx, url)
-	path, jobs := gssJobs(t, fit.ParallelEffects, fit.NonparallelEffects)
+	q := newTestQueue(t, 60*time.Second, fit.ParallelEffects, fit.NonparallelEffects)
+	ctx, url, c, path, jobs := q.ctx, q.url, q.c, q.path, q.jobs
 	clog := &LogBuffer{}
-	co := NewCoordinator(ctx, c, "plan-hash", clog)
-	if _, err := co.AddData(path); err != nil {
-		t.Fatal(err)
-	}
+	co := q.coordinator(t, clog)
 	type out struct {
 		res  []*fit.Result
 		errs []error
@@ -113,10 +108,8 @@ func TestDuplicateAndForeignRepliesIgnored(t *testing.T) {
 // A worker refuses data whose bytes do not hash to the job's hash; the
 // coordinator replaces such a copy before publishing.
 func TestDataHashMismatchRefused(t *testing.T) {
-	ctx := testContext(t, 60*time.Second)
-	url := localserver.ForTest(t)
-	c := connect(t, ctx, url)
-	path, jobs := gssJobs(t, fit.ParallelEffects)
+	q := newTestQueue(t, 60*time.Second, fit.ParallelEffects)
+	ctx, url, c, jobs := q.ctx, q.url, q.c, q.jobs
 	if _, err := c.data.PutBytes(ctx, jobs[0].DataHash, []byte("warm,yr89\n1,0\n2,1\n")); err != nil {
 		t.Fatal(err)
 	}
@@ -129,10 +122,7 @@ func TestDataHashMismatchRefused(t *testing.T) {
 	if r := replies[0]; r.Result != nil || !strings.Contains(r.Err, "refusing to fit") || !strings.Contains(r.Err, jobs[0].DataHash) {
 		t.Fatalf("reply: %+v", r)
 	}
-	co := NewCoordinator(ctx, c, "plan-hash", nil)
-	if _, err := co.AddData(path); err != nil {
-		t.Fatal(err)
-	}
+	co := q.coordinator(t, nil)
 	res, errs := co.Execute(jobs)
 	if errs[0] != nil || !res[0].OK() {
 		t.Fatalf("after the coordinator's upload: %v", errs[0])
@@ -142,10 +132,8 @@ func TestDataHashMismatchRefused(t *testing.T) {
 // A job that takes longer than the ack deadline stays with its worker,
 // which keeps it with in-progress acknowledgements: it is delivered once.
 func TestLongJobKeptByInProgressAcks(t *testing.T) {
-	ctx := testContext(t, 60*time.Second)
-	url := localserver.ForTest(t)
-	c := connect(t, ctx, url)
-	path, jobs := gssJobs(t, fit.ParallelEffects)
+	q := newTestQueue(t, 60*time.Second, fit.ParallelEffects)
+	ctx, url, c, path, jobs := q.ctx, q.url, q.c, q.path, q.jobs
 	if err := c.PutData(ctx, path, jobs[0].DataHash); err != nil {
 		t.Fatal(err)
 	}
@@ -195,16 +183,11 @@ func TestPartitionWithOneCategoryRefused(t *testing.T) {
 // coordinator, or a live watch the server has not yet fed), which forces
 // the interleaving without timing.
 func TestOverwrittenReplyBeforeWatchIgnored(t *testing.T) {
-	ctx := testContext(t, 60*time.Second)
-	url := localserver.ForTest(t)
-	c := connect(t, ctx, url)
-	path, jobs := gssJobs(t, fit.ParallelEffects)
+	q := newTestQueue(t, 60*time.Second, fit.ParallelEffects)
+	ctx, c, path, jobs := q.ctx, q.c, q.path, q.jobs
 	storeFirstAndLate(t, ctx, c, path, jobs)
 	clog := &LogBuffer{}
-	co := NewCoordinator(ctx, c, "plan-hash", clog)
-	if _, err := co.AddData(path); err != nil {
-		t.Fatal(err)
-	}
+	co := q.coordinator(t, clog)
 	res, errs := co.Execute(jobs)
 	if errs[0] != nil {
 		t.Fatal(errs[0])

@@ -2,6 +2,7 @@ package queue
 
 import (
 	"context"
+	"io"
 	"ordplan/internal/refdata"
 	"path/filepath"
 	"strings"
@@ -11,6 +12,7 @@ import (
 	"ordplan/runner"
 	"ordplan/runner/data"
 	"ordplan/runner/fit"
+	"ordplan/runner/queue/localserver"
 )
 
 var refDir = refdata.Dir()
@@ -101,4 +103,35 @@ func gssJobs(t *testing.T, effects ...fit.Structure) (string, []runner.Job) {
 
 func cancelable() (context.Context, context.CancelFunc) {
 	return context.WithCancel(context.Background())
+}
+
+// testQueue is what most queue tests start from: a context that bounds
+// the test, a loopback server (url), a client of it, and the jobs of
+// gssJobs on the data file at path.
+type testQueue struct {
+	ctx  context.Context
+	url  string
+	c    *Client
+	path string
+	jobs []runner.Job
+}
+
+func newTestQueue(t *testing.T, limit time.Duration, effects ...fit.Structure) *testQueue {
+	t.Helper()
+	ctx := testContext(t, limit)
+	url := localserver.ForTest(t)
+	q := &testQueue{ctx: ctx, url: url, c: connect(t, ctx, url)}
+	q.path, q.jobs = gssJobs(t, effects...)
+	return q
+}
+
+// coordinator is a coordinator of the run "plan-hash" on the client, with
+// the data file registered.
+func (q *testQueue) coordinator(t *testing.T, log io.Writer) *Coordinator {
+	t.Helper()
+	co := NewCoordinator(q.ctx, q.c, "plan-hash", log)
+	if _, err := co.AddData(q.path); err != nil {
+		t.Fatal(err)
+	}
+	return co
 }

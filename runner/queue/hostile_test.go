@@ -60,15 +60,10 @@ func sameAsLocal(t *testing.T, path string, job runner.Job, got *fit.Result) {
 // estimates, without the secret) recomputes that fit: the report equals a
 // local run's.
 func TestRewrittenResultDiscarded(t *testing.T) {
-	ctx := testContext(t, 90*time.Second)
-	url := localserver.ForTest(t)
-	c := connect(t, ctx, url)
-	path, jobs := gssJobs(t, fit.ParallelEffects, fit.NonparallelEffects)
+	q := newTestQueue(t, 90*time.Second, fit.ParallelEffects, fit.NonparallelEffects)
+	ctx, url, c, path, jobs := q.ctx, q.url, q.c, q.path, q.jobs
 	startWorker(t, url, "w1", 5*time.Second, 0)
-	co := NewCoordinator(ctx, c, "plan-hash", nil)
-	if _, err := co.AddData(path); err != nil {
-		t.Fatal(err)
-	}
+	co := q.coordinator(t, nil)
 	if _, errs := co.Execute(jobs); errs[0] != nil || errs[1] != nil {
 		t.Fatal(errs)
 	}
@@ -109,13 +104,10 @@ func TestRewrittenResultDiscarded(t *testing.T) {
 // finishes with the local results. Garbage that keeps coming fails the run
 // with a message, never a hang.
 func TestGarbageAndEmptyRepliesDiscarded(t *testing.T) {
-	ctx := testContext(t, 90*time.Second)
-	url := localserver.ForTest(t)
-	c := connect(t, ctx, url)
-	path, jobs := gssJobs(t, fit.ParallelEffects, fit.NonparallelEffects)
+	q := newTestQueue(t, 90*time.Second, fit.ParallelEffects, fit.NonparallelEffects)
+	ctx, url, c, path, jobs := q.ctx, q.url, q.c, q.path, q.jobs
 	log := &LogBuffer{}
-	co := NewCoordinator(ctx, c, "plan-hash", log)
-	co.AddData(path)
+	co := q.coordinator(t, log)
 	id, _ := RunID("plan-hash", jobs)
 	done := make(chan [2]any, 1)
 	go func() {
@@ -217,10 +209,8 @@ func TestJobDeadline(t *testing.T) {
 // asking for 2^30 random starts (or more iterations than allowed) with an
 // error instead of computing it.
 func TestWorkerLimitsAndUnsealedJobs(t *testing.T) {
-	ctx := testContext(t, 60*time.Second)
-	url := localserver.ForTest(t)
-	c := connect(t, ctx, url)
-	path, jobs := gssJobs(t, fit.ParallelEffects)
+	q := newTestQueue(t, 60*time.Second, fit.ParallelEffects)
+	ctx, url, c, path, jobs := q.ctx, q.url, q.c, q.path, q.jobs
 	if err := c.PutData(ctx, path, jobs[0].DataHash); err != nil {
 		t.Fatal(err)
 	}
@@ -256,10 +246,8 @@ func TestWorkerLimitsAndUnsealedJobs(t *testing.T) {
 // holding it died) is answered with an error at the next delivery, not
 // computed again; the server stops delivering it after MaxDeliver.
 func TestPoisonedJobReported(t *testing.T) {
-	ctx := testContext(t, 60*time.Second)
-	url := localserver.ForTest(t)
-	c := connect(t, ctx, url)
-	path, jobs := gssJobs(t, fit.ParallelEffects)
+	q := newTestQueue(t, 60*time.Second, fit.ParallelEffects)
+	ctx, url, c, path, jobs := q.ctx, q.url, q.c, q.path, q.jobs
 	c.PutData(ctx, path, jobs[0].DataHash)
 	task := &Task{Batch: "poison", Index: 0, ID: jobs[0].ID, Kind: KindFit, Fit: &jobs[0]}
 	b, _ := c.sealTask(task)
