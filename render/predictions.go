@@ -3,6 +3,7 @@ package render
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
 
 	"github.com/go-echarts/go-echarts/v2/charts"
@@ -236,9 +237,22 @@ func cumulativeChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 	caption := fmt.Sprintf("The category probabilities of %s stacked, lowest category at the bottom: the upper edge of each layer is the cumulative probability P(%s <= category) as %s varies.", or.Outcome.Column, or.Outcome.Column, pf.focus)
 	J := len(res.Categories)
 	l := charts.NewLine()
-	l.SetGlobalOptions(append(baseOpts(id, title, sub, 420, predictionGrid),
+	// The legend stands right of the plot, one entry per line, the
+	// categories in their order from the bottom up as the layers are: the
+	// highest at the top (the static figure lists them so too).
+	widest := 0
+	for _, c := range res.Categories {
+		widest = max(widest, len([]rune(c)))
+	}
+	legend := slices.Clone(res.Categories)
+	slices.Reverse(legend)
+	grid := predictionGrid
+	grid.Right = strconv.Itoa(40 + 7*widest)
+	l.SetGlobalOptions(append(baseOpts(id, title, sub, 420, grid),
 		charts.WithXAxisOpts(gridAxis(pf.focus)),
-		charts.WithYAxisOpts(opts.YAxis{Name: "cumulative probability", Type: "value", Min: 0, Max: 1}))...)
+		charts.WithYAxisOpts(opts.YAxis{Name: "cumulative probability", Type: "value", Min: 0, Max: 1}),
+		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Orient: "vertical", Right: "0", Top: "middle",
+			Data: legend}))...)
 	l.SetXAxis(gridLabels(xs))
 	fig := newFigure(title, pf.focus, "cumulative probability")
 	fig.yMin, fig.yMax = 0, 1

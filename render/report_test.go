@@ -249,3 +249,35 @@ func TestFallbackNamedWhereTheChosenModelIs(t *testing.T) {
 		}
 	}
 }
+
+// TestStackedLegendFollowsLayers: the legend of the stacked chart of
+// cumulative probabilities in report.html lists the outcome's categories
+// as its layers lie, from the highest at the top to the lowest at the
+// bottom, one per line right of the plot, as the static figure does.
+func TestStackedLegendFollowsLayers(t *testing.T) {
+	files := runGolden(t, 2)
+	found := false
+	for _, c := range drawCall.FindAllStringSubmatch(string(files["report.html"]), -1) {
+		var opt struct {
+			Title  struct{ Text string } `json:"title"`
+			Legend struct {
+				Orient string   `json:"orient"`
+				Data   []string `json:"data"`
+			} `json:"legend"`
+		}
+		if err := json.Unmarshal([]byte(c[2]), &opt); err != nil {
+			t.Fatal(err)
+		}
+		if !strings.HasPrefix(opt.Title.Text, "Cumulative probabilities by ") {
+			continue
+		}
+		found = true
+		want := "very_safe safe neutral unsafe very_unsafe"
+		if opt.Legend.Orient != "vertical" || strings.Join(opt.Legend.Data, " ") != want {
+			t.Errorf("%s: legend %+v, want vertical %s", c[1], opt.Legend, want)
+		}
+	}
+	if !found {
+		t.Fatal("no stacked chart in the golden report")
+	}
+}
