@@ -6,6 +6,7 @@ import (
 
 	"ordplan/render/numfmt"
 	"ordplan/runner"
+	"ordplan/runner/design"
 	"ordplan/runner/impute/chained"
 )
 
@@ -22,7 +23,7 @@ var modelWords = map[chained.Method]string{
 // impute): the method, the sets, iterations and seed, each column's model,
 // the notes of the fits, the convergence summary when asked, and what
 // imputation assumes.
-func writeChained(d *doc, ch *runner.ChainedRecord, rows int) {
+func writeChained(d *doc, ch *runner.ChainedRecord, rows int, dz *design.Design) {
 	d.p("The imputed sets were made by this run by chained equations (fully conditional specification; van Buuren 2018): %d sets, each after %d iterations through the incomplete columns, with seed %d (set s draws from its own stream, so the sets do not depend on the number of workers). Of the %d rows, %d (%s) had a missing value in the outcome or a predictor column and were imputed rather than dropped. Each incomplete column was imputed from a model of it given the outcome and every other column used, as main effects of the raw columns; its parameters were drawn from their approximate posterior for every imputation, so that the sets reflect the uncertainty of the imputation model. Columns were visited in the order %s (fewest missing values first).",
 		ch.Sets, ch.Iterations, ch.Seed, rows, ch.RowsIncomplete, sharePct(ch.RowsIncomplete, rows), "`"+strings.Join(ch.Visits, "`, `")+"`")
 	var tab [][]string
@@ -34,7 +35,9 @@ func writeChained(d *doc, ch *runner.ChainedRecord, rows int) {
 		tab = append(tab, []string{"`" + m.Column + "`", m.Kind, fmt.Sprint(m.Missing), sharePct(m.Missing, rows), w, strings.Join(m.Predictors, ", ")})
 	}
 	d.captioned("Imputation models").table([]string{"Column", "Kind", "Imputed", "Share", "Model", "Predictors"}, tab)
-	d.p("Transformations, polynomials, splines and interactions of the analysis were computed after imputation from the imputed columns (impute, then transform). The imputation models hold the columns as main effects only: effects of interactions and of nonlinear terms of imputed columns can be attenuated, more so the more values are missing.")
+	if lack := termsImputationLacks(dz); lack != "" {
+		d.p("Transformations, polynomials, splines and interactions of the analysis were computed after imputation from the imputed columns (impute, then transform). The imputation models hold the columns as main effects only: the effects of %s can be attenuated, more so the more values are missing.", lack)
+	}
 	if len(ch.Notes) > 0 {
 		d.p("What the imputation models needed:")
 		d.list(ch.Notes)
@@ -52,7 +55,7 @@ func writeChained(d *doc, ch *runner.ChainedRecord, rows int) {
 
 // imputationMethods is the methods paragraph's sentence on imputed data:
 // how the sets were made (by this run or elsewhere) and pooled.
-func imputationMethods(im *runner.ImputedRun, c *citer) string {
+func imputationMethods(im *runner.ImputedRun, dz *design.Design, c *citer) string {
 	pool := func() string {
 		return fmt.Sprintf("Every model was fitted on each of the %d imputed data sets and the results were combined by Rubin's rules %s.", im.M, c.cite("rubin"))
 	}
@@ -86,6 +89,49 @@ func imputationMethods(im *runner.ImputedRun, c *citer) string {
 			fallback = fmt.Sprintf(" Imputation models with perfect prediction were refitted with weighted pseudo-observations %s.", c.cite("augment"))
 		}
 	}
-	return fmt.Sprintf("The %d rows with a missing value in the outcome or a predictor were kept, and their missing values were multiply imputed by chained equations %s: %d imputed sets, each after %d iterations (seed %d), with %s, every model given the outcome and the other columns and its parameters drawn from their approximate posterior; transformations and interactions were computed from the imputed columns.%s The imputation assumes that values are missing at random given these columns. %s",
-		ch.RowsIncomplete, sources, ch.Sets, ch.Iterations, ch.Seed, strings.Join(models, "; "), fallback, pool())
+	return fmt.Sprintf("The %d rows with a missing value in the outcome or a predictor were kept, and their missing values were multiply imputed by chained equations %s: %d imputed sets, each after %d iterations (seed %d), with %s, every model given the outcome and the other columns and its parameters drawn from their approximate posterior; transformations and interactions were computed from the imputed columns.%s%s The imputation assumes that values are missing at random given these columns. %s",
+		ch.RowsIncomplete, sources, ch.Sets, ch.Iterations, ch.Seed, strings.Join(models, "; "), fallback, mainEffectsCaution(dz), pool())
+}
+
+// mainEffectsCaution warns, when the analysis has interactions or
+// nonlinear terms, that the imputation models (main effects only) do not
+// carry them.
+func mainEffectsCaution(dz *design.Design) string {
+	lack := termsImputationLacks(dz)
+	if lack == "" {
+		return ""
+	}
+	return fmt.Sprintf(" The imputation models hold main effects only (each column linear in the others), while the analysis has %s; as these terms were computed from values imputed without them, their estimates can be biased toward zero (toward no interaction and no curvature).", lack)
+}
+
+// termsImputationLacks names the terms the imputation models by chained
+// equations do not hold: "the interaction a&b and the nonlinear term
+// xq (polynomial)", or "" when every term is linear in the raw columns.
+func termsImputationLacks(dz *design.Design) string {
+	if dz == nil {
+		return ""
+	}
+	var inter, curves []string
+	for _, r := range dz.Records() {
+		switch {
+		case r.Kind == design.KindInteraction:
+			inter = append(inter, r.Term)
+		case r.Log:
+			curves = append(curves, r.Term+" (log)")
+		case r.Sqrt:
+			curves = append(curves, r.Term+" (square root)")
+		case r.Poly > 1:
+			curves = append(curves, r.Term+" (polynomial)")
+		case len(r.Knots) > 0:
+			curves = append(curves, r.Term+" (spline)")
+		}
+	}
+	var what []string
+	if len(inter) > 0 {
+		what = append(what, "the interaction"+plural(len(inter))+" "+joinAnd(inter))
+	}
+	if len(curves) > 0 {
+		what = append(what, "the nonlinear term"+plural(len(curves))+" "+joinAnd(curves))
+	}
+	return joinAnd(what)
 }

@@ -168,7 +168,7 @@ func remoteJobs(ex Executor, parts []gridPart, progress Progress) error {
 		count := &counter{progress: progress, label: jobs[0].Outcome, total: len(jobs)}
 		results, errs = w.ExecuteWatched(jobs, func(k int) {
 			if k >= 0 && k < len(slots) {
-				count.finished(slots[k].e.ID)
+				count.finished(jobs[k].ID)
 			}
 		})
 	} else {
