@@ -255,7 +255,7 @@ func TestFallbackNamedWhereTheChosenModelIs(t *testing.T) {
 // as its layers lie, from the highest at the top to the lowest at the
 // bottom, one per line right of the plot, as the static figure does.
 func TestStackedLegendFollowsLayers(t *testing.T) {
-	files := runGolden(t, 2)
+	files := renderPlan(t, goldenPlan, 2)
 	found := false
 	for _, c := range drawCall.FindAllStringSubmatch(string(files["report.html"]), -1) {
 		var opt struct {
