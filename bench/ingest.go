@@ -11,7 +11,6 @@ import (
 	"slices"
 	"strconv"
 	"strings"
-	"syscall"
 	"time"
 
 	"github.com/parquet-go/parquet-go"
@@ -191,13 +190,7 @@ func ingestChild(path, mode string, delim string, decimalComma bool, K int) {
 }
 
 // cpuSeconds is the user and system time of the process so far.
-func cpuSeconds() float64 {
-	var ru syscall.Rusage
-	if syscall.Getrusage(syscall.RUSAGE_SELF, &ru) != nil {
-		return 0
-	}
-	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano()).Seconds()
-}
+func cpuSeconds() float64 { return fit.CPUTime().Seconds() }
 
 // vmHWM is the process's peak resident set size in bytes (0 when unknown).
 func vmHWM() uint64 {

@@ -4,14 +4,12 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
-	"errors"
 	"fmt"
 	"os"
 	"path/filepath"
 	"sort"
 	"strconv"
 	"strings"
-	"syscall"
 
 	"ordplan/runner"
 )
@@ -34,17 +32,17 @@ func lockOutput(dir string) (*outputLock, error) {
 		return nil, fmt.Errorf("output folder: %w", err)
 	}
 	path := filepath.Join(dir, lockFile)
-	f, err := os.OpenFile(path, os.O_RDWR|os.O_CREATE|syscall.O_NOFOLLOW, 0o644)
+	f, err := os.OpenFile(path, os.O_RDWR|os.O_CREATE|openNoFollow, 0o644)
 	if err != nil {
 		return nil, fmt.Errorf("output folder %s: cannot open its lock file %s: %w", dir, lockFile, err)
 	}
-	if err := syscall.Flock(int(f.Fd()), syscall.LOCK_EX|syscall.LOCK_NB); err != nil {
+	if busy, err := tryLock(f); err != nil {
 		holder := ""
 		if b, rerr := os.ReadFile(path); rerr == nil && len(b) > 0 {
 			holder = " (held by " + strings.TrimSpace(string(b)) + ")"
 		}
 		f.Close()
-		if errors.Is(err, syscall.EWOULDBLOCK) {
+		if busy {
 			return nil, fmt.Errorf("output folder %s: another ordplan run is writing there%s; wait for it to finish or give another --out", dir, holder)
 		}
 		return nil, fmt.Errorf("output folder %s: cannot lock %s: %v", dir, lockFile, err)
@@ -58,7 +56,7 @@ func lockOutput(dir string) (*outputLock, error) {
 // Unlock releases the lock.
 func (l *outputLock) Unlock() {
 	if l != nil && l.f != nil {
-		syscall.Flock(int(l.f.Fd()), syscall.LOCK_UN)
+		unlockFile(l.f)
 		l.f.Close()
 		l.f = nil
 	}

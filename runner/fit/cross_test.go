@@ -33,24 +33,26 @@ func TestCrossProducts(t *testing.T) {
 					fullCross(full, kb, A, ka, B, kb, n, wv)
 					for a := 0; a < ka; a++ {
 						for b := 0; b < ka; b++ {
-							want := 0.0
+							want, abs := 0.0, 0.0
 							for i := 0; i < n; i++ {
 								want += A[a*n+i] * (weight(i) * A[b*n+i])
+								abs += math.Abs(A[a*n+i] * (weight(i) * A[b*n+i]))
 							}
 							got := sym[a*ka+b]
 							if b > a {
-								want = 0 // the upper triangle is left alone
+								want, abs = 0, 0 // the upper triangle is left alone
 							}
-							if got != want {
+							if !sameSum(got, want, abs, n) {
 								t.Fatalf("symCross n=%d k=%d (%d,%d): %g, want %g", n, ka, a, b, got, want)
 							}
 						}
 						for b := 0; b < kb; b++ {
-							want := 0.0
+							want, abs := 0.0, 0.0
 							for i := 0; i < n; i++ {
 								want += A[a*n+i] * (weight(i) * B[b*n+i])
+								abs += math.Abs(A[a*n+i] * (weight(i) * B[b*n+i]))
 							}
-							if got := full[a*kb+b]; got != want {
+							if got := full[a*kb+b]; !sameSum(got, want, abs, n) {
 								t.Fatalf("fullCross n=%d %dx%d (%d,%d): %g, want %g", n, ka, kb, a, b, got, want)
 							}
 						}
@@ -67,6 +69,35 @@ func TestCrossProducts(t *testing.T) {
 			}
 		}
 	}
+}
+
+// fusedMultiplyAdd reports whether this build computes x*y + z with one
+// rounding (a fused multiply-add, which the Go compiler may use on arm64,
+// ppc64, s390x, riscv64 and amd64 v3): with x = 1 + 2^-30, y = 1 - 2^-30,
+// z = -1 the product rounds to 1 (the sum is 0) unless fused (-2^-60).
+func fusedMultiplyAdd() bool {
+	x, y, z := fmaOperands()
+	return x*y+z != 0
+}
+
+//go:noinline
+func fmaOperands() (float64, float64, float64) {
+	return 1 + 0x1p-30, 1 - 0x1p-30, -1
+}
+
+// sameSum compares a cross-product entry with the plain sum over the rows
+// in order. Without fused multiply-adds both round each product and each
+// addition the same way, so they are equal to the last bit. Where the
+// compiler may fuse a product into the following addition, it may do so
+// in one loop and not in the other; each of the n steps then differs by at
+// most one rounding of a product and one of the running sum, so the two
+// sums differ by at most 2 n eps times the sum of the absolute products
+// (the usual bound for recursive summation, doubled).
+func sameSum(got, want, abs float64, n int) bool {
+	if !fusedMultiplyAdd() {
+		return got == want
+	}
+	return math.Abs(got-want) <= 2*float64(n)*0x1p-52*abs
 }
 
 func randCols(rng *rand.Rand, k, n int) []float64 {

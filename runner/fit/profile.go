@@ -2,7 +2,6 @@ package fit
 
 import (
 	"sync"
-	"syscall"
 	"time"
 )
 
@@ -16,11 +15,7 @@ type profile struct {
 // cpuClock is the CPU time the process has used (user and system, all
 // threads). With one worker it is the evaluation's own time, which other
 // work on a shared machine does not lengthen as it does the wall clock.
-func cpuClock() time.Duration {
-	var ru syscall.Rusage
-	syscall.Getrusage(syscall.RUSAGE_SELF, &ru)
-	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
-}
+func cpuClock() time.Duration { return CPUTime() }
 
 func (p *profile) add(d time.Duration) {
 	p.mu.Lock()

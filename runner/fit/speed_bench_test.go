@@ -4,7 +4,6 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
-	"syscall"
 	"testing"
 	"time"
 )
@@ -12,11 +11,7 @@ import (
 // processCPU is the CPU time (user and system) the process has used: on a
 // machine shared with other work it measures a fit's own cost better than
 // the wall clock.
-func processCPU() time.Duration {
-	var ru syscall.Rusage
-	syscall.Getrusage(syscall.RUSAGE_SELF, &ru)
-	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
-}
+func processCPU() time.Duration { return CPUTime() }
 
 // speedData draws n rows with K predictors (half 0/1, half standard
 // normal) and J categories from a cumulative logit. Fixed seed.
