@@ -340,3 +340,30 @@ func TestKeepIncomplete(t *testing.T) {
 		t.Errorf("missing table %+v", mt)
 	}
 }
+
+// Options.Codes: the outcome's codes are read as numbers and indexed by
+// the listed codes, a listed code no row has is a category without rows,
+// and a code not listed is an error naming the file, line and column —
+// the same from the chunked reader and the record-at-a-time one.
+func TestListedCodes(t *testing.T) {
+	opt := Options{Outcome: "y", Predictors: []string{"a"}, Codes: []int64{1, 2, 3, 7}}
+	in := "y,a\n+2,0.5\n02,1.5\n1,2\n 3 ,4\n2,1\n"
+	for _, read := range []func(string) (*Dataset, error){
+		func(s string) (*Dataset, error) { return Read(strings.NewReader(s), "c.csv", opt) },
+		func(s string) (*Dataset, error) { return ReadStream(strings.NewReader(s), "c.csv", opt) },
+	} {
+		d, err := read(in)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !reflect.DeepEqual(d.Categories, []string{"1", "2", "3", "7"}) || !reflect.DeepEqual(d.Y, []int{1, 1, 0, 2, 1}) ||
+			!reflect.DeepEqual(d.Counts, []float64{1, 3, 1, 0}) || !reflect.DeepEqual(d.Unobserved, []string{"7"}) {
+			t.Fatalf("categories %v, y %v, counts %v, unobserved %v", d.Categories, d.Y, d.Counts, d.Unobserved)
+		}
+		_, err = read(in + "5,1\n")
+		want := `c.csv:7: column "y": outcome code 5 is not one of the codes the whole data has (1, 2, 3, 7): the parts must code the outcome alike`
+		if err == nil || err.Error() != want {
+			t.Fatalf("got %v\nwant %s", err, want)
+		}
+	}
+}

@@ -12,6 +12,13 @@ type Options struct {
 	// the outcome must hold integer codes and the categories are the distinct
 	// codes observed, sorted numerically, labelled by their decimal text.
 	Categories []string
+	// Codes, when Categories is empty, are the outcome's integer codes in
+	// category order (each labelled by its decimal text), as the whole of
+	// data held in parts has them: a part is then coded as the whole even
+	// when it lacks a category, and a code is read as a number (+2 and 02
+	// are 2). A code not listed is an error naming its row. Empty: the
+	// codes seen.
+	Codes      []int64
 	Predictors []string // predictor columns, in the order wanted
 	// PredictorLevels declares categorical predictor columns: the cell
 	// text must be one of the listed levels and is stored in X as the

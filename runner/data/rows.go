@@ -93,9 +93,16 @@ func (r *reader) finish(t *rowTally, d *Dataset) (*Dataset, error) {
 	if d.X == nil {
 		d.X = []float64{}
 	}
-	if len(opt.Categories) > 0 {
+	switch {
+	case len(opt.Categories) > 0:
 		d.Categories = slices.Clone(opt.Categories)
-	} else {
+	case len(opt.Codes) > 0:
+		cats, err := r.listedCodes(t.codes, d)
+		if err != nil {
+			return nil, err
+		}
+		d.Categories = cats
+	default:
 		d.Categories = codeCategories(t.codes, d.Y)
 	}
 	if err := r.tally(d); err != nil {
@@ -490,6 +497,29 @@ func codeCategories(codes []int64, y []int) []string {
 		labels[i] = strconv.FormatInt(c, 10)
 	}
 	return labels
+}
+
+// listedCodes sets y to the index of each code among Options.Codes and
+// returns their decimal labels; a code not listed is an error naming the
+// first row that has it.
+func (r *reader) listedCodes(codes []int64, d *Dataset) ([]string, error) {
+	at := make(map[int64]int, len(r.opt.Codes))
+	labels := make([]string, len(r.opt.Codes))
+	for j, c := range r.opt.Codes {
+		at[c] = j
+		labels[j] = strconv.FormatInt(c, 10)
+	}
+	for i, c := range codes {
+		if d.Y[i] < 0 {
+			continue
+		}
+		j, ok := at[c]
+		if !ok {
+			return nil, r.fail(d.Lines[i], r.opt.Outcome, "outcome code %d is not one of the codes the whole data has (%s): the parts must code the outcome alike", c, strings.Join(labels, ", "))
+		}
+		d.Y[i] = j
+	}
+	return labels, nil
 }
 
 // codeSpan is the largest span of outcome codes looked up in a table.

@@ -11,6 +11,7 @@ import (
 	"hash"
 	"io"
 	"math"
+	"strconv"
 
 	"github.com/nats-io/nats.go/jetstream"
 
@@ -53,10 +54,22 @@ func FitPartitioned(ctx context.Context, c *Client, parts []PartitionRef, whole 
 	if dopt.Outcome == "" {
 		return nil, errors.New("partitioned fit: the data options name no outcome column")
 	}
-	if len(dopt.Categories) == 0 {
-		dopt.Categories = whole.Categories
+	if len(dopt.Categories) == 0 && len(dopt.Codes) == 0 {
+		// Integer codes: every partition reads them as the whole data's
+		// codes, as numbers (a code written +2 or 02 is the category 2).
+		for _, l := range whole.Categories {
+			c, err := strconv.ParseInt(l, 10, 64)
+			if err != nil || strconv.FormatInt(c, 10) != l {
+				dopt.Codes = nil
+				break
+			}
+			dopt.Codes = append(dopt.Codes, c)
+		}
+		if len(dopt.Codes) == 0 {
+			dopt.Categories = whole.Categories
+		}
 	}
-	if len(dopt.Categories) != whole.J {
+	if max(len(dopt.Categories), len(dopt.Codes)) != whole.J {
 		return nil, fmt.Errorf("partitioned fit: the data options need the %d category labels of the whole data, in order", whole.J)
 	}
 	hashes := make([]string, len(parts))

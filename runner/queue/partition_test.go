@@ -108,3 +108,116 @@ func TestPartitionedFitNeedsCategories(t *testing.T) {
 		t.Fatalf("got %v", err)
 	}
 }
+
+// Parts coded by integers, without declared categories: the codes are read
+// as numbers in every part (a part writing +2 or 02 is coded as one writing
+// 2), each part is read once to describe the whole, and the summed fit
+// equals the local fit of the whole file (General Social Survey extract,
+// Long 1997).
+func TestPartitionedFitCodesAsNumbers(t *testing.T) {
+	ctx := testContext(t, 60*time.Second)
+	url := localserver.ForTest(t)
+	c := connect(t, ctx, url)
+	startWorker(t, url, "w1", 5*time.Second, 0)
+
+	path := filepath.Join(refDir, "gsswarm.csv")
+	dopt := data.Options{Outcome: "warm", Predictors: gssPredictors}
+	ds, err := data.Load(path, dopt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	parts := splitCSV(t, path, 3)
+	// The second part writes its codes with a plus sign, the third with a
+	// leading zero; the first part lacks category 4.
+	rewrite := func(p PartitionRef, f func(code string) string, drop string) PartitionRef {
+		b, err := os.ReadFile(p.Path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		lines := strings.SplitAfter(string(b), "\n")
+		out := lines[0]
+		for _, ln := range lines[1:] {
+			code, rest, ok := strings.Cut(ln, ",")
+			if !ok || code == drop {
+				continue
+			}
+			out += f(code) + "," + rest
+		}
+		return writePart(t, filepath.Dir(p.Path), p.Name, out)
+	}
+	parts[0] = rewrite(parts[0], func(c string) string { return c }, "4")
+	parts[1] = rewrite(parts[1], func(c string) string { return "+" + c }, "")
+	parts[2] = rewrite(parts[2], func(c string) string { return "0" + c }, "")
+	var paths []string
+	for _, p := range parts {
+		paths = append(paths, p.Path)
+	}
+	whole, refs, read, err := PartitionFiles(paths, dopt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if strings.Join(whole.Categories, " ") != "1 2 3 4" || whole.J != 4 {
+		t.Fatalf("categories %v (J %d), want 1 2 3 4", whole.Categories, whole.J)
+	}
+	// The whole file less the dropped rows of the first part.
+	local, err := data.LoadFiles(paths, data.Options{Outcome: "warm", Predictors: gssPredictors, Categories: []string{"1", "2", "3", "4", "+1", "+2", "+3", "+4", "01", "02", "03", "04"}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if read != local.RowsRead || whole.Rows != local.N || whole.Rows >= ds.N {
+		t.Fatalf("rows read %d, kept %d; the parts have %d (%d kept)", read, whole.Rows, local.RowsRead, local.N)
+	}
+	for j := range 4 {
+		if want := local.Counts[j] + local.Counts[4+j] + local.Counts[8+j]; whole.Counts[j] != want {
+			t.Fatalf("category %d: count %v, want %v", j+1, whole.Counts[j], want)
+		}
+	}
+	// The local fit of the same rows, read with plain codes.
+	var plain strings.Builder
+	for i, p := range paths {
+		b, err := os.ReadFile(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		s := string(b)
+		if i > 0 {
+			_, s, _ = strings.Cut(s, "\n")
+		}
+		for _, ln := range strings.SplitAfter(s, "\n") {
+			plain.WriteString(strings.TrimLeft(strings.TrimPrefix(ln, "+"), "0"))
+		}
+	}
+	dsPlain, err := data.Read(strings.NewReader(plain.String()), "plain.csv", dopt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m, err := runner.Spec{Approach: fit.Cumulative, Link: fit.Logit, Predictors: gssPredictors}.Model()
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, err := fit.Fit(runner.FitData(dsPlain), m, fit.Options{Workers: 1})
+	if err != nil || !want.OK() {
+		t.Fatalf("local fit: %v", err)
+	}
+	got, err := FitPartitioned(ctx, c, refs, whole, m, PartitionOptions{Data: dopt})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(got.LogLik-want.LogLik) > 1e-8 {
+		t.Fatalf("ll %.12f, local %.12f", got.LogLik, want.LogLik)
+	}
+	for i := range got.Estimates {
+		if math.Abs(got.Estimates[i]-want.Estimates[i]) > 1e-8 {
+			t.Errorf("%s: %v, local %v", got.ParamNames[i], got.Estimates[i], want.Estimates[i])
+		}
+	}
+}
+
+// A run with no jobs on data held as parts has no replies (no job to take
+// the outcome's name from).
+func TestExecutePartsNoJobs(t *testing.T) {
+	replies, err := (&Coordinator{}).executeParts(nil, []string{"p1.csv", "p2.csv"}, nil)
+	if err != nil || len(replies) != 0 {
+		t.Fatalf("got %v, %v", replies, err)
+	}
+}

@@ -47,6 +47,9 @@ func notPartitioned(j runner.Job) string {
 
 // executeParts fits the jobs of a run on data held as parts, in job order.
 func (co *Coordinator) executeParts(jobs []runner.Job, paths []string, finished func(k int)) ([]*Reply, error) {
+	if len(jobs) == 0 {
+		return nil, nil
+	}
 	start := time.Now()
 	outcome := jobs[0].Outcome
 	type described struct {
@@ -80,15 +83,10 @@ func (co *Coordinator) executeParts(jobs []runner.Job, paths []string, finished 
 		}
 		w, ok := wholes[string(key)]
 		if !ok {
+			// Each part is read once here; without declared categories
+			// the whole data's codes come from all parts, and every part
+			// is coded by them (FitPartitioned).
 			dopt := j.DataOptions
-			if len(dopt.Categories) == 0 {
-				// Every part must code the outcome as the whole data do.
-				ds, err := data.LoadFiles(paths, dopt)
-				if err != nil {
-					return nil, fmt.Errorf("queue: %s: %v", outcome, err)
-				}
-				dopt.Categories = ds.Categories
-			}
 			whole, refs, _, err := PartitionFiles(paths, dopt)
 			if err != nil {
 				return nil, fmt.Errorf("queue: %s: %v", outcome, err)

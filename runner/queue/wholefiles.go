@@ -2,7 +2,10 @@ package queue
 
 import (
 	"fmt"
+	"maps"
 	"path/filepath"
+	"slices"
+	"strconv"
 
 	"ordplan/runner"
 	"ordplan/runner/data"
@@ -10,21 +13,27 @@ import (
 )
 
 // PartitionFiles reads partition files one at a time (so no more than one
-// partition is in memory) to describe the whole data set: category counts,
-// rows, the spread of the predictors, and a reference to each file by its
-// hash. Every file must have the same columns; dopt.Categories must give the
-// categories in order, since a partition may lack some. It also returns the number of data rows read.
+// partition is in memory), each once, to describe the whole data set:
+// category counts, rows, the spread of the predictors, and a reference to
+// each file by its hash. Every file must have the same columns. Categories
+// are dopt.Categories, in order (a partition may lack some); without them
+// the outcome holds integer codes and the categories are the codes any
+// partition has, sorted (read as numbers: +2 and 02 are 2), which
+// FitPartitioned passes on to the workers (data.Options.Codes). It also
+// returns the number of data rows read.
 func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRef, int, error) {
 	var whole fit.Whole
 	read := 0
-	if len(dopt.Categories) < 2 {
-		return whole, nil, 0, fmt.Errorf("a partitioned fit needs the outcome's categories in order (--categories a,b,c): a partition may lack some")
+	coded := len(dopt.Categories) == 0 && len(dopt.Codes) == 0
+	if len(dopt.Categories) == 1 {
+		return whole, nil, 0, fmt.Errorf("a partitioned fit needs at least two outcome categories; one is given (%s)", dopt.Categories[0])
 	}
-	whole.J = len(dopt.Categories)
-	whole.Categories = dopt.Categories
 	whole.Predictors = dopt.Predictors
-	whole.Counts = make([]float64, whole.J)
 	whole.Spread = &fit.Spread{}
+	counts := map[int64]float64{} // coded: weight per code
+	if !coded {
+		whole.Counts = make([]float64, max(len(dopt.Categories), len(dopt.Codes)))
+	}
 	var refs []PartitionRef
 	for _, p := range paths {
 		ds, err := data.Load(p, dopt)
@@ -32,8 +41,18 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 			return whole, nil, 0, err
 		}
 		read += ds.RowsRead
-		for j, c := range ds.Counts {
-			whole.Counts[j] += c
+		if coded {
+			for j, c := range ds.Counts {
+				code, err := strconv.ParseInt(ds.Categories[j], 10, 64)
+				if err != nil {
+					return whole, nil, 0, fmt.Errorf("%s: outcome category %q is not an integer code", p, ds.Categories[j])
+				}
+				counts[code] += c
+			}
+		} else {
+			for j, c := range ds.Counts {
+				whole.Counts[j] += c
+			}
 		}
 		whole.Rows += ds.N
 		whole.Spread.Merge(fit.SpreadOf(runner.FitData(ds)))
@@ -43,5 +62,20 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 		}
 		refs = append(refs, PartitionRef{Name: filepath.Base(p), Hash: h, Path: p})
 	}
+	switch {
+	case coded:
+		codes := slices.Sorted(maps.Keys(counts))
+		for _, c := range codes {
+			whole.Categories = append(whole.Categories, strconv.FormatInt(c, 10))
+			whole.Counts = append(whole.Counts, counts[c])
+		}
+	case len(dopt.Categories) > 0:
+		whole.Categories = dopt.Categories
+	default:
+		for _, c := range dopt.Codes {
+			whole.Categories = append(whole.Categories, strconv.FormatInt(c, 10))
+		}
+	}
+	whole.J = len(whole.Categories)
 	return whole, refs, read, nil
 }
