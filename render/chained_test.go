@@ -62,15 +62,7 @@ rules:
 	// do not carry them.
 	src = strings.Replace(src, "predictors: [x1, x2]", "predictors: [x1, {name: x2q, column: x2, polynomial: {degree: 2}}, {name: x1x2, interact: [x1, x2q]}]", 1)
 	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644)
-	if p, err = plan.Load(filepath.Join(dir, "p.yaml")); err != nil {
-		t.Fatal(err)
-	}
-	if res, err = runner.Run(p, runner.Options{Workers: 2}); err != nil {
-		t.Fatal(err)
-	}
-	if files, err = Outputs(res, runner.BuildDecisions(res), nil); err != nil {
-		t.Fatal(err)
-	}
+	files := renderPlan(t, filepath.Join(dir, "p.yaml"), 2)
 	want := "The imputation models hold main effects only (each column linear in the others), while the analysis has the interaction x1x2 and the nonlinear term x2q (polynomial); as these terms were computed from values imputed without them, their estimates can be biased toward zero (toward no interaction and no curvature)."
 	if md := string(files["report.md"]); !strings.Contains(md, want) {
 		t.Errorf("report.md lacks %q", want)
