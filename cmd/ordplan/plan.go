@@ -6,7 +6,6 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
-	"time"
 
 	"ordplan/plan"
 	"ordplan/render"
@@ -113,7 +112,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	defer lock.Unlock()
 	opt := runner.Options{Workers: *workers}
 	if !*quiet {
-		opt.Progress = newProgress(stderr, stderr == io.Writer(os.Stderr) && isTerminal(os.Stderr), time.Now)
+		opt.Progress = stderrProgress(stderr)
 	}
 	var queueLog io.Writer
 	if !*quiet {

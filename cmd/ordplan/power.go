@@ -77,7 +77,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 	defer olock.Unlock()
 	opt := simulate.PowerOptions{Sizes: ns, Replicates: *reps, Alpha: *alpha, Workers: *workers}
 	if !*quiet {
-		opt.Progress = stderr
+		opt.Progress = stderrProgress(stderr)
 	}
 	if qcfg != nil {
 		ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)

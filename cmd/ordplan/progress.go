@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"io"
+	"os"
 	"strings"
 	"sync"
 	"time"
@@ -25,6 +26,12 @@ type progress struct {
 	width   int       // of the last live line
 }
 
+// stderrProgress reports on stderr: a live line when it is the process's
+// standard error on a terminal, plain lines otherwise.
+func stderrProgress(stderr io.Writer) *progress {
+	return newProgress(stderr, stderr == io.Writer(os.Stderr) && isTerminal(os.Stderr), time.Now)
+}
+
 func newProgress(w io.Writer, live bool, now func() time.Time) *progress {
 	t := now()
 	return &progress{w: w, live: live, now: now, every: 5 * time.Second, start: t, last: t}
@@ -32,6 +39,12 @@ func newProgress(w io.Writer, live bool, now func() time.Time) *progress {
 
 // Fitted implements runner.Progress.
 func (p *progress) Fitted(outcome, id string, done, total int) { p.step(outcome, "fits", done, total) }
+
+// Replicated implements simulate.Progress: the replicates of size n of a
+// power study finished so far.
+func (p *progress) Replicated(n, done, total int) {
+	p.step(fmt.Sprintf("n = %d", n), "replicates", done, total)
+}
 
 // Imputed implements runner.ImputationProgress: the imputed sets of an
 // outcome made so far.

@@ -62,3 +62,17 @@ func TestRunProgressAndQuiet(t *testing.T) {
 		t.Fatalf("--quiet: exit %d, stderr:\n%s", code, errs)
 	}
 }
+
+// ordplan power reports its replicates in the same words, size by size.
+func TestPowerProgress(t *testing.T) {
+	planPath := filepath.Join("..", "..", "plans", "kneepain.yaml")
+	_, errs, code := runCLI("power", planPath, "--n", "120,240", "--replicates", "3", "--workers", "2", "--out", filepath.Join(t.TempDir(), "p"))
+	if code != 0 || strings.Contains(errs, "\r") {
+		t.Fatalf("exit %d, stderr:\n%s", code, errs)
+	}
+	for _, n := range []string{"120", "240"} {
+		if !strings.Contains(errs, "n = "+n+": 3 of 3 replicates, ") {
+			t.Errorf("no last progress line for n = %s:\n%s", n, errs)
+		}
+	}
+}

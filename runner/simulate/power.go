@@ -3,7 +3,6 @@ package simulate
 import (
 	"bytes"
 	"fmt"
-	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -23,9 +22,9 @@ import (
 type PowerOptions struct {
 	Sizes      []int
 	Replicates int
-	Alpha      float64   // level of the hypothesis tests (default 0.05)
-	Workers    int       // replicates run at once (default: all cores)
-	Progress   io.Writer // progress lines (nil: none)
+	Alpha      float64  // level of the hypothesis tests (default 0.05)
+	Workers    int      // replicates run at once (default: all cores)
+	Progress   Progress // hears of every finished replicate (nil: nobody)
 	// Run runs the plan on one replicate (nil: here, one fit at a time);
 	// `ordplan power --queue` sends each replicate's fits to workers.
 	Run func(*plan.Plan) (*runner.Result, error)
@@ -127,6 +126,12 @@ type repOutcome struct {
 	notConverged bool
 }
 
+// Progress hears of the replicates of a power study as they finish: done
+// of total replicates of size n are finished.
+type Progress interface {
+	Replicated(n, done, total int)
+}
+
 // Power simulates the plan's assumptions at each size and runs the whole
 // decision procedure on every replicate.
 func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
@@ -175,10 +180,7 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 					mu.Lock()
 					done++
 					if opt.Progress != nil {
-						fmt.Fprintf(opt.Progress, "\rn = %d: %d/%d replicates", n, done, opt.Replicates)
-						if done == opt.Replicates {
-							fmt.Fprintln(opt.Progress)
-						}
+						opt.Progress.Replicated(n, done, opt.Replicates)
 					}
 					mu.Unlock()
 				}
