@@ -33,7 +33,15 @@ func main() {
 	speedRepeats := flag.Int("targets-repeats", 3, "runs of each timing of -only targets (best and median reported)")
 	memChild := flag.String("memory-child", "", "(internal) fit this model in this process and print its peak memory")
 	memRows := flag.Int("memory-rows", 1_000_000, "(internal) rows of -memory-child")
+	writeOnly := flag.String("write-csv", "", "write the CSV that -only targets times `ordplan fit` on (-targets-rows rows, 10 predictors, two categories) to this file and stop")
 	flag.Parse()
+	if *writeOnly != "" {
+		if err := writeCSV(*writeOnly, generate(*speedRows, 10, 2, 11)); err != nil {
+			fmt.Fprintln(os.Stderr, "bench:", err)
+			os.Exit(1)
+		}
+		return
+	}
 	if *memChild != "" {
 		runMemoryChild(*memChild, *memRows)
 		return

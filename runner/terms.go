@@ -34,7 +34,12 @@ func buildDesign(spec design.Spec, ds *data.Dataset) (*design.Design, *fit.Data,
 // frozenData is the fit input of ds through the design dz, whose
 // constants may have been frozen on other rows (imputed set 1).
 func frozenData(dz *design.Design, ds *data.Dataset) (*fit.Data, error) {
-	X, i, err := dz.Matrix(ds.X, ds.N)
+	// Plain numeric columns: the design is the raw rows, shared rather
+	// than copied (neither is written after reading).
+	X, i, err := ds.X, -1, error(nil)
+	if !dz.Identity() {
+		X, i, err = dz.Matrix(ds.X, ds.N)
+	}
 	if err != nil {
 		if ds.Parts != nil {
 			return nil, fmt.Errorf("data %s: %v", ds.Where(ds.Lines[i]), err)

@@ -104,16 +104,8 @@ func build(spec Spec, raw []float64, n int, w []float64, lines []int, fz *Frozen
 		}
 		return out
 	}
-	for s, src := range spec.Sources {
-		if fz != nil {
-			break
-		}
-		d.SourceScale[s] = 1
-		if src.Cat == nil && n > 1 {
-			if _, sd := meanSD(col(s), w); sd > 0 {
-				d.SourceScale[s] = sd
-			}
-		}
+	if fz == nil {
+		sourceScales(d.SourceScale, spec.Sources, raw, n, w)
 	}
 	index := map[string]int{}
 	for k, ts := range spec.Terms {
@@ -134,11 +126,14 @@ func build(spec Spec, raw []float64, n int, w []float64, lines []int, fz *Frozen
 				return nil, &Error{Key: ts.Key, Msg: fmt.Sprintf("column %q is not among the columns read", ts.Source)}
 			}
 			t.Source = s
-			v := col(s)
-			if spec.Sources[s].Cat != nil {
-				err = d.buildCategorical(&t, spec.Sources[s], v, w, ft)
-			} else {
-				err = d.buildNumeric(&t, spec.Sources[s].Name, v, w, lines, ft)
+			switch {
+			case spec.Sources[s].Cat != nil:
+				err = d.buildCategorical(&t, spec.Sources[s], col(s), w, ft)
+			case ts.Transform.Empty() && fz == nil:
+				// The column as it is: no constant to freeze, no value to refuse.
+				t.Kind, t.Columns = KindNumeric, numericNames(t.Name, ts.Transform, 0)
+			default:
+				err = d.buildNumeric(&t, spec.Sources[s].Name, col(s), w, lines, ft)
 			}
 		}
 		if err != nil {
@@ -154,6 +149,39 @@ func build(spec Spec, raw []float64, n int, w []float64, lines []int, fz *Frozen
 		d.Terms = append(d.Terms, t)
 	}
 	return d, nil
+}
+
+// sourceScales sets scale[s] to the sample SD of each numeric source with
+// n > 1 rows (meanSD of its column, the same sums in the same order) and
+// to 1 otherwise, in two passes over the rows of raw (n x len(srcs)).
+func sourceScales(scale []float64, srcs []Source, raw []float64, n int, w []float64) {
+	S := len(srcs)
+	tot := 0.0
+	sum, ss := make([]float64, S), make([]float64, S)
+	for i := 0; i < n; i++ {
+		wi := weight(w, i)
+		tot += wi
+		for s, x := range raw[i*S : (i+1)*S] {
+			sum[s] += wi * x
+		}
+	}
+	for s := range sum {
+		sum[s] /= tot // the mean
+	}
+	for i := 0; i < n; i++ {
+		wi := weight(w, i)
+		for s, x := range raw[i*S : (i+1)*S] {
+			ss[s] += wi * (x - sum[s]) * (x - sum[s])
+		}
+	}
+	for s, src := range srcs {
+		scale[s] = 1
+		if src.Cat == nil && n > 1 && tot > 1 {
+			if sd := math.Sqrt(ss[s] / (tot - 1)); sd > 0 {
+				scale[s] = sd
+			}
+		}
+	}
 }
 
 // meanSD is the weighted mean and standard deviation (divisor: sum of

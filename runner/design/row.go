@@ -3,6 +3,8 @@ package design
 import (
 	"fmt"
 	"math"
+	"runtime"
+	"sync"
 )
 
 // Row fills out (len(Columns)) with the design row of one raw row (len
@@ -96,16 +98,57 @@ func levelText(src Source, x float64) string {
 }
 
 // Matrix builds the design matrix (n x len(Columns)) of n raw rows; the
-// error names the row (0-based) and the problem.
+// error names the row (0-based) and the problem (the first such row).
+// Rows are made in parallel chunks; each row's values are its own.
 func (d *Design) Matrix(raw []float64, n int) ([]float64, int, error) {
 	S, K := len(d.Sources), len(d.Columns)
 	X := make([]float64, n*K)
-	for i := 0; i < n; i++ {
-		if err := d.Row(raw[i*S:(i+1)*S], X[i*K:(i+1)*K]); err != nil {
-			return nil, i, err
+	const chunk = 1 << 14
+	nc := (n + chunk - 1) / chunk
+	bad := make([]int, nc)
+	errs := make([]error, nc)
+	var wg sync.WaitGroup
+	next := make(chan int, nc)
+	for c := range nc {
+		next <- c
+	}
+	close(next)
+	for range min(runtime.GOMAXPROCS(0), nc) {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for c := range next {
+				for i := c * chunk; i < min(n, (c+1)*chunk); i++ {
+					if err := d.Row(raw[i*S:(i+1)*S], X[i*K:(i+1)*K]); err != nil {
+						bad[c], errs[c] = i, err
+						break
+					}
+				}
+			}
+		}()
+	}
+	wg.Wait()
+	for c, err := range errs {
+		if err != nil {
+			return nil, bad[c], err
 		}
 	}
 	return X, -1, nil
+}
+
+// Identity reports whether the design columns are the raw columns
+// themselves, in order: every term one numeric column as it is, so the
+// design matrix of raw rows is the raw rows.
+func (d *Design) Identity() bool {
+	if len(d.Terms) != len(d.Sources) || len(d.Columns) != len(d.Sources) {
+		return false
+	}
+	for k, t := range d.Terms {
+		if t.Kind != KindNumeric || t.Source != k || t.First != k || len(t.Columns) != 1 || !t.Transform.Empty() {
+			return false
+		}
+	}
+	return true
 }
 
 // Level returns the index of a level of categorical column s, or -1.

@@ -6,13 +6,13 @@ import (
 )
 
 // compressed returns the design with identical rows (same predictors,
-// outcome and offset) merged into one row carrying the summed weight, in
+// indicator group, outcome and offset) merged into one row carrying the summed weight, in
 // order of first appearance, when that at least halves the rows; otherwise
 // d itself. Tabulated data and registers of categorical predictors fit in
 // time proportional to their distinct rows. mult counts the original rows
 // behind each merged row (for row-level diagnostics).
 func (d *design) compressed() *design {
-	n, K := d.n, d.K
+	n, K := d.n, d.width()
 	if n < 64 {
 		return d
 	}
@@ -24,12 +24,15 @@ func (d *design) compressed() *design {
 			buf = binary.LittleEndian.AppendUint64(buf, math.Float64bits(v))
 		}
 		buf = binary.LittleEndian.AppendUint64(buf, uint64(d.y[i]))
+		if d.group != nil {
+			buf = binary.LittleEndian.AppendUint64(buf, uint64(d.group[i]))
+		}
 		if d.off != nil {
 			buf = binary.LittleEndian.AppendUint64(buf, math.Float64bits(d.off[i]))
 		}
 		return buf
 	}
-	buf := make([]byte, 0, 8*(K+2))
+	buf := make([]byte, 0, 8*(K+3))
 	seen := make(map[string]struct{}, sample)
 	for i := 0; i < sample; i++ {
 		seen[string(keyOf(i, buf))] = struct{}{}
@@ -52,16 +55,22 @@ func (d *design) compressed() *design {
 			rows = append(rows, i)
 		}
 	}
-	c := &design{n: len(rows), K: K, x: make([]float64, len(rows)*K), y: make([]int, len(rows)),
-		w: make([]float64, len(rows)), mult: make([]int, len(rows))}
+	c := &design{n: len(rows), K: d.K, x: make([]float64, len(rows)*K), y: make([]int, len(rows)),
+		w: make([]float64, len(rows)), mult: make([]int, len(rows)), groups: d.groups}
 	if d.off != nil {
 		c.off = make([]float64, len(rows))
+	}
+	if d.group != nil {
+		c.group = make([]int, len(rows))
 	}
 	for j, i := range rows {
 		copy(c.x[j*K:(j+1)*K], d.x[i*K:(i+1)*K])
 		c.y[j] = d.y[i]
 		if d.off != nil {
 			c.off[j] = d.off[i]
+		}
+		if d.group != nil {
+			c.group[j] = d.group[i]
 		}
 	}
 	for i := 0; i < n; i++ {

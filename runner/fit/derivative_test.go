@@ -154,7 +154,7 @@ func TestExpectedInformation(t *testing.T) {
 					p := make([]float64, base.J)
 					K := len(base.Predictors)
 					for i := range base.Y {
-						pr.linear(c, i, L)
+						pr.linear(c, i, L, make([]float64, pr.d.K))
 						pr.ker.probs(L, p)
 						for cat := 0; cat < base.J; cat++ {
 							ex.Y = append(ex.Y, cat)

@@ -25,11 +25,35 @@ func RowsEvaluated() int64 { return rowsEvaluated.Load() }
 // design is the data of one fit, row-major, never expanded per equation.
 type design struct {
 	n, K int
-	x    []float64 // n x K
+	x    []float64 // n x (K - groups)
 	y    []int     // 0..J-1
 	w    []float64 // nil: all 1
 	off  []float64 // nil: all 0
 	mult []int     // rows merged into each row (compressed designs; nil: 1)
+	// The last groups columns are indicators held as each row's group
+	// (Data.ind): column K-groups+g-1 is 1 where group is g.
+	group  []int
+	groups int
+}
+
+// width is the number of columns x holds per row.
+func (d *design) width() int { return d.K - d.groups }
+
+// row returns the K predictor values of row i: the row of x itself, or
+// buf (length K) filled with it and the indicators.
+func (d *design) row(i int, buf []float64) []float64 {
+	w := d.width()
+	if d.groups == 0 {
+		return d.x[i*w : (i+1)*w]
+	}
+	copy(buf, d.x[i*w:(i+1)*w])
+	for g := 1; g <= d.groups; g++ {
+		buf[w+g-1] = 0
+	}
+	if g := d.group[i]; g > 0 {
+		buf[w+g-1] = 1
+	}
+	return buf[:d.K]
 }
 
 // rowsBehind is the number of original rows that row i stands for.
@@ -228,23 +252,37 @@ func (p *problem) evaluate(theta []float64, order int, expected bool) *acc {
 
 // eachBlock runs f for every block of rows (b its index, rows lo..hi-1) on
 // p.workers goroutines; f writes only into the slots of its block.
-func (p *problem) eachBlock(f func(b, lo, hi int)) {
-	n := p.d.n
-	nb := (n + blockRows - 1) / blockRows
-	workers := min(p.workers, nb)
+func (p *problem) eachBlock(f func(b, lo, hi int)) { forBlocks(p.d.n, p.workers, f) }
+
+// forBlocks runs f for every block of blockRows rows of n (b its index,
+// rows lo..hi-1) on workers goroutines (0: GOMAXPROCS); f writes only into
+// the slots of its block, so what is summed over blocks in order does not
+// depend on the workers.
+func forBlocks(n, workers int, f func(b, lo, hi int)) {
+	forEach((n+blockRows-1)/blockRows, workers, func(b int) {
+		lo := b * blockRows
+		f(b, lo, min(lo+blockRows, n))
+	})
+}
+
+// forEach runs f(0), ..., f(count-1) on workers goroutines (0: GOMAXPROCS).
+func forEach(count, workers int, f func(i int)) {
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	workers = min(workers, count)
 	var wg sync.WaitGroup
-	next := make(chan int, nb)
-	for b := 0; b < nb; b++ {
-		next <- b
+	next := make(chan int, count)
+	for i := 0; i < count; i++ {
+		next <- i
 	}
 	close(next)
 	for w := 0; w < workers; w++ {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			for b := range next {
-				lo := b * blockRows
-				f(b, lo, min(lo+blockRows, n))
+			for i := range next {
+				f(i)
 			}
 		}()
 	}
@@ -322,10 +360,20 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 // s.xp with the parallel columns (Kp x rows) of the block, column by column.
 func (p *problem) blockColumns(c *coefs, lo, rows int, s *scratch) {
 	d := p.d
-	x := d.x[lo*d.K : (lo+rows)*d.K]
+	w := d.width()
+	x := d.x[lo*w : (lo+rows)*w]
 	column := func(dst []float64, k int) {
+		if k >= w {
+			for i, g := range d.group[lo : lo+rows] {
+				dst[i] = 0
+				if g == k-w+1 {
+					dst[i] = 1
+				}
+			}
+			return
+		}
 		for i := range dst {
-			dst[i] = x[i*d.K+k]
+			dst[i] = x[i*w+k]
 		}
 	}
 	for j, col := range p.freeCols {
@@ -338,8 +386,9 @@ func (p *problem) blockColumns(c *coefs, lo, rows int, s *scratch) {
 		case predictorColumn:
 			column(dst, col.index)
 		default:
+			buf := make([]float64, d.K)
 			for i := range dst {
-				dst[i] = col.value(x[i*d.K:(i+1)*d.K], p.ly.groups, c.gam)
+				dst[i] = col.value(d.row(lo+i, buf), p.ly.groups, c.gam)
 			}
 		}
 	}

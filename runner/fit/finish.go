@@ -37,8 +37,12 @@ type source struct {
 	rows *Data
 }
 
-// localSource is the source of a fit of the rows of d, evaluated by pr.
-func localSource(d *Data, pr *problem) *source {
+// localSource is the source of a fit of the rows of d, evaluated by pr;
+// sd is the predictors' standard deviations (nil: computed here).
+func localSource(d *Data, pr *problem, sd []float64) *source {
+	if sd == nil {
+		sd = predictorSD(d)
+	}
 	return &source{
 		predictors: d.Predictors, categories: d.categories(), J: d.J, nobs: d.NObs(), nrows: d.N(),
 		fitted: func(theta []float64) (float64, int, error) {
@@ -47,7 +51,7 @@ func localSource(d *Data, pr *problem) *source {
 		},
 		loglik:   pr.evaluator(false),
 		expected: pr.expectedHessian,
-		sd:       predictorSD(d),
+		sd:       sd,
 		rows:     d,
 	}
 }
@@ -251,13 +255,14 @@ func (p *problem) fittedCheck(theta []float64) (float64, int) {
 	p.eachBlock(func(b, lo, hi int) {
 		L := make([]float64, q)
 		pr := make([]float64, q+1)
+		buf := make([]float64, d.K)
 		minP := math.Inf(1)
 		neg := 0
 		for i := lo; i < hi; i++ {
 			if d.weight(i) == 0 {
 				continue
 			}
-			p.linear(c, i, L)
+			p.linear(c, i, L, buf)
 			p.ker.probs(L, pr)
 			bad := false
 			for _, v := range pr {
@@ -281,14 +286,15 @@ func (p *problem) fittedCheck(theta []float64) (float64, int) {
 	return minP, neg
 }
 
-// linear fills L with the J-1 linear predictors of row i.
-func (p *problem) linear(c *coefs, i int, L []float64) {
+// linear fills L with the J-1 linear predictors of row i (buf: scratch of
+// length K, see design.row).
+func (p *problem) linear(c *coefs, i int, L, buf []float64) {
 	d := p.d
 	off := 0.0
 	if d.off != nil {
 		off = d.off[i]
 	}
-	p.linearRow(c, d.x[i*d.K:(i+1)*d.K], off, L)
+	p.linearRow(c, d.row(i, buf), off, L)
 }
 
 // linearRow fills L with the J-1 linear predictors of a row of predictor
@@ -525,7 +531,7 @@ func (s *Separation) addEvidence(d *Data) {
 			per[c] = map[float64]bool{}
 		}
 		for i, y := range d.Y {
-			v := d.X[i*K+k]
+			v := d.at(i, k)
 			all[v] = true
 			if len(per[y]) <= 1 {
 				per[y][v] = true

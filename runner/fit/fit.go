@@ -15,6 +15,63 @@ type Data struct {
 	Categories []string  // J category labels (optional; default "1".."J")
 	Weights    []float64 // frequency weights (nil: all 1)
 	Offset     []float64 // added to x'b in every equation (nil: none)
+	// ind, when set, makes the last ind.count predictors 0/1 columns that
+	// X does not hold: indicators of each row's group (see indicators).
+	ind *indicators
+}
+
+// indicators are 0/1 columns held as one group number per row: with w
+// columns in X, predictor w+g-1 is 1 in the rows of group g (g = 1..count)
+// and 0 elsewhere, group 0 having none. LipsitzTest fits its group
+// indicators this way, without a copy of X.
+type indicators struct {
+	group []int
+	count int
+}
+
+// width is the number of predictors X holds per row.
+func (d *Data) width() int {
+	if d.ind == nil {
+		return len(d.Predictors)
+	}
+	return len(d.Predictors) - d.ind.count
+}
+
+// at is the value of predictor k in row i.
+func (d *Data) at(i, k int) float64 {
+	w := d.width()
+	if k < w {
+		return d.X[i*w+k]
+	}
+	if d.ind.group[i] == k-w+1 {
+		return 1
+	}
+	return 0
+}
+
+// columns fills u (len(Predictors) columns of rows rows, column-major) with
+// the predictors of rows lo..lo+rows-1.
+func (d *Data) columns(lo, rows int, u []float64) {
+	w := d.width()
+	x := d.X[lo*w : (lo+rows)*w]
+	for k := 0; k < w; k++ {
+		dst := u[k*rows : (k+1)*rows]
+		for i := range dst {
+			dst[i] = x[i*w+k]
+		}
+	}
+	if d.ind == nil {
+		return
+	}
+	for g := 1; g <= d.ind.count; g++ {
+		dst := u[(w+g-1)*rows : (w+g)*rows]
+		for i, gi := range d.ind.group[lo : lo+rows] {
+			dst[i] = 0
+			if gi == g {
+				dst[i] = 1
+			}
+		}
+	}
 }
 
 // screenAbove is ScreenAbove with its default.
@@ -163,7 +220,8 @@ func fitValid(d *Data, m Model, opt Options, sh *shared) (*Result, error) {
 	if float64(len(ly.params)) > nobs {
 		return nil, inputErr("model %s has %d parameters but only %g observations", m.Name(), len(ly.params), nobs)
 	}
-	if err := sh.rank(d); err != nil {
+	sd, err := sh.rank(d, opt.Workers)
+	if err != nil {
 		return nil, err
 	}
 	if opt.MaxIter <= 0 {
@@ -189,7 +247,8 @@ func fitValid(d *Data, m Model, opt Options, sh *shared) (*Result, error) {
 		}
 	}
 	st := pr.newton(start, opt.MaxIter, opt.Scoring)
-	return finish(localSource(d, pr), m, ly, st, opt)
+	src := localSource(d, pr, sd)
+	return finish(src, m, ly, st, opt)
 }
 
 // weight is the frequency weight of row i.
@@ -225,11 +284,15 @@ func (d *Data) categories() []string {
 }
 
 func (d *Data) design() *design {
-	return &design{n: len(d.Y), K: len(d.Predictors), x: d.X, y: d.Y, w: d.Weights, off: d.Offset}
+	des := &design{n: len(d.Y), K: len(d.Predictors), x: d.X, y: d.Y, w: d.Weights, off: d.Offset}
+	if d.ind != nil {
+		des.group, des.groups = d.ind.group, d.ind.count
+	}
+	return des
 }
 
 func (d *Data) validate() error {
-	n, K := len(d.Y), len(d.Predictors)
+	n, K := len(d.Y), d.width()
 	if d.J < 2 {
 		return inputErr("the outcome needs at least 2 categories, got %d", d.J)
 	}

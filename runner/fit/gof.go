@@ -127,19 +127,12 @@ func LipsitzTest(d *Data, r *Result, groups int, opt Options) (*Lipsitz, error) 
 		out.Test = failedTest("lipsitz", "every row has the same predicted score, so there is only one group")
 		return out, nil
 	}
-	// Phase 4: the model with group indicators.
-	n, K := d.N(), len(d.Predictors)
-	K2 := K + G - 1
+	// Phase 4: the model with group indicators, held as each row's group
+	// (Data.ind) beside the rows of d.
 	ad := &Data{Y: d.Y, J: d.J, Categories: d.Categories, Weights: d.Weights, Offset: d.Offset,
-		Predictors: append([]string(nil), d.Predictors...), X: make([]float64, n*K2)}
+		Predictors: append([]string(nil), d.Predictors...), X: d.X, ind: &indicators{group: t.group, count: G - 1}}
 	for g := 1; g < G; g++ {
 		ad.Predictors = append(ad.Predictors, fmt.Sprintf("score_group_%d", g+1))
-	}
-	for i := 0; i < n; i++ {
-		copy(ad.X[i*K2:i*K2+K], d.X[i*K:(i+1)*K])
-		if g := t.group[i]; g > 0 {
-			ad.X[i*K2+K+g-1] = 1
-		}
 	}
 	am := r.Model
 	am.Effects = append(append([]Effect(nil), r.Model.Effects...), allEffects(G-1, Parallel)...)
@@ -181,22 +174,28 @@ func (d *Data) weightOf(i int) float64 {
 }
 
 // scoresOf gives every row's predicted probabilities (n x J, row-major)
-// and its ordinal score sum_j j P(y=j) (categories scored 1..J).
+// and its ordinal score sum_j j P(y=j) (categories scored 1..J), blocks of
+// rows in parallel (each row's values are its own).
 func scoresOf(d *Data, r *Result, pr *problem) (probs, score []float64) {
 	n, K, J := d.N(), len(d.Predictors), d.J
 	probs = make([]float64, n*J)
 	score = make([]float64, n)
-	for i := 0; i < n; i++ {
-		off := 0.0
-		if d.Offset != nil {
-			off = d.Offset[i]
+	c := pr.coefs(r.Estimates)
+	forBlocks(n, 0, func(_, lo, hi int) {
+		L := make([]float64, pr.q)
+		for i := lo; i < hi; i++ {
+			off := 0.0
+			if d.Offset != nil {
+				off = d.Offset[i]
+			}
+			p := probs[i*J : (i+1)*J]
+			pr.linearRow(c, d.X[i*K:(i+1)*K], off, L)
+			pr.ker.probs(L, p)
+			for j, v := range p {
+				score[i] += float64(j+1) * v
+			}
 		}
-		p := probs[i*J : (i+1)*J]
-		pr.probsAt(r.Estimates, d.X[i*K:(i+1)*K], off, p)
-		for j, v := range p {
-			score[i] += float64(j+1) * v
-		}
-	}
+	})
 	return probs, score
 }
 
@@ -205,7 +204,7 @@ func scoresOf(d *Data, r *Result, pr *problem) (probs, score []float64) {
 // (0..groups-1) into out: a run of equal scores goes, whole, to the group
 // of its weighted midpoint, so groups may stay empty.
 func cutByScore(order []int, score []float64, w func(int) float64, groups int, out []int) {
-	sort.SliceStable(order, func(a, b int) bool { return score[order[a]] < score[order[b]] })
+	sortByScore(order, score)
 	total := 0.0
 	for _, i := range order {
 		total += w(i)
@@ -228,4 +227,71 @@ func cutByScore(order []int, score []float64, w func(int) float64, groups int, o
 		cum += tw
 		a = b
 	}
+}
+
+// sortByScore sorts the rows listed in order by score, stably (rows of
+// equal score keep their order; -0 equals 0). Long lists of finite scores
+// are sorted by a radix sort of the scores' bits, which gives the same
+// order as a stable comparison sort in linear time.
+func sortByScore(order []int, score []float64) {
+	finite := true
+	for _, i := range order {
+		if math.IsNaN(score[i]) {
+			finite = false
+			break
+		}
+	}
+	if len(order) < 512 || !finite {
+		sort.SliceStable(order, func(a, b int) bool { return score[order[a]] < score[order[b]] })
+		return
+	}
+	type keyed struct {
+		key uint64
+		row int
+	}
+	a, b := make([]keyed, len(order)), make([]keyed, len(order))
+	for j, i := range order {
+		a[j] = keyed{orderedBits(score[i]), i}
+	}
+	// Least significant digit first; each pass is stable, so rows of equal
+	// key keep their order.
+	const bits = 11
+	const mask = 1<<bits - 1
+	count := make([]int, 1<<bits)
+	for shift := 0; shift < 64; shift += bits {
+		clear(count)
+		for _, e := range a {
+			count[e.key>>shift&mask]++
+		}
+		if count[a[0].key>>shift&mask] == len(a) {
+			continue // one digit for every row: the pass would not move any
+		}
+		sum := 0
+		for d, c := range count {
+			count[d] = sum
+			sum += c
+		}
+		for _, e := range a {
+			d := e.key >> shift & mask
+			b[count[d]] = e
+			count[d]++
+		}
+		a, b = b, a
+	}
+	for j, e := range a {
+		order[j] = e.row
+	}
+}
+
+// orderedBits maps a float64 that is not NaN to a uint64 in the same
+// order (-0 and 0 to the same value).
+func orderedBits(v float64) uint64 {
+	if v == 0 {
+		v = 0
+	}
+	u := math.Float64bits(v)
+	if u>>63 != 0 {
+		return ^u
+	}
+	return u | 1<<63
 }

@@ -13,6 +13,7 @@ import (
 // (its parallel and its partial counterpart: see auxModels).
 type shared struct {
 	rankOnce sync.Once
+	rankSD   []float64
 	rankErr  error
 	desOnce  sync.Once
 	des      *design
@@ -29,9 +30,9 @@ type gridFit struct {
 }
 
 // rank is d.checkRank, made once (it does not depend on the model).
-func (sh *shared) rank(d *Data) error {
-	sh.rankOnce.Do(func() { sh.rankErr = d.checkRank(Model{}) })
-	return sh.rankErr
+func (sh *shared) rank(d *Data, workers int) ([]float64, error) {
+	sh.rankOnce.Do(func() { sh.rankSD, sh.rankErr = d.checkRank(workers) })
+	return sh.rankSD, sh.rankErr
 }
 
 // design is d's compressed design, made once.

@@ -103,7 +103,7 @@ func SpreadOf(d *Data) *Spread {
 		w := d.weight(i)
 		s.Weight += w
 		for k := 0; k < K; k++ {
-			s.Mean[k] += w * d.X[i*K+k]
+			s.Mean[k] += w * d.at(i, k)
 		}
 	}
 	for k := range s.Mean {
@@ -112,7 +112,7 @@ func SpreadOf(d *Data) *Spread {
 	for i := range d.Y {
 		w := d.weight(i)
 		for k := 0; k < K; k++ {
-			v := d.X[i*K+k] - s.Mean[k]
+			v := d.at(i, k) - s.Mean[k]
 			s.SS[k] += w * v * v
 		}
 	}

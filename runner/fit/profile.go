@@ -104,11 +104,12 @@ func referenceCross(d *design) []float64 {
 	u := make([]float64, rows*K)
 	w := make([]float64, rows)
 	dst := make([]float64, K*K)
+	buf := make([]float64, K)
 	for lo := 0; lo < d.n; lo += blockRows {
 		hi := min(lo+blockRows, d.n)
 		n := hi - lo
 		for i := 0; i < n; i++ {
-			xi := d.x[(lo+i)*K : (lo+i+1)*K]
+			xi := d.row(lo+i, buf)
 			for j, v := range xi {
 				u[j*n+i] = v
 			}

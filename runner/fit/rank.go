@@ -14,73 +14,47 @@ func CheckDesign(d *Data) error {
 	if err := d.validate(); err != nil {
 		return err
 	}
-	return d.checkRank(Model{})
+	_, err := d.checkRank(0)
+	return err
 }
 
 // checkRank refuses constant predictors and predictors that are exact linear
 // combinations of others (with the cutpoints playing the intercept), naming
-// them.
-func (d *Data) checkRank(m Model) error {
-	n, K := len(d.Y), len(d.Predictors)
+// them. It returns each predictor's weighted standard deviation (divisor
+// the sum of weights). The sums over the rows take two passes on workers
+// goroutines (columnSums).
+func (d *Data) checkRank(workers int) ([]float64, error) {
+	K := len(d.Predictors)
 	if K == 0 {
-		return nil
-	}
-	w := func(i int) float64 {
-		if d.Weights == nil {
-			return 1
-		}
-		return d.Weights[i]
+		return nil, nil
 	}
 	// Units: squares and cross-products of a predictor must be ordinary
 	// floating-point numbers for the information to be exact. Within
 	// [minScale, maxScale] the unit-diagonal scaling of the engine gives
 	// the same fit in any units (tested at 1e-100 and 1e100); outside, the
 	// predictor is refused with the factor that brings it back.
+	cs := d.columnSums(workers, nil)
 	for k := 0; k < K; k++ {
-		maxAbs, at := 0.0, 0
-		for i := 0; i < n; i++ {
-			if v := math.Abs(d.X[i*K+k]); v > maxAbs {
-				maxAbs, at = v, i
-			}
-		}
-		switch {
+		switch maxAbs := cs.maxAbs[k]; {
 		case maxAbs > maxScale:
-			return inputErr("predictor %q has the value %g in row %d: too large to fit (values up to %g can be fitted exactly); rescale the predictor (for example divide it by 1e%d)",
-				d.Predictors[k], d.X[at*K+k], at+1, maxScale, int(math.Floor(math.Log10(maxAbs))))
+			return nil, inputErr("predictor %q has the value %g in row %d: too large to fit (values up to %g can be fitted exactly); rescale the predictor (for example divide it by 1e%d)",
+				d.Predictors[k], d.at(cs.at[k], k), cs.at[k]+1, maxScale, int(math.Floor(math.Log10(maxAbs))))
 		case maxAbs > 0 && maxAbs < minScale:
-			return inputErr("predictor %q has values no larger than %g in absolute value: too small to fit exactly (the largest value must be at least %g); rescale the predictor (for example multiply it by 1e%d)",
+			return nil, inputErr("predictor %q has values no larger than %g in absolute value: too small to fit exactly (the largest value must be at least %g); rescale the predictor (for example multiply it by 1e%d)",
 				d.Predictors[k], maxAbs, minScale, -int(math.Floor(math.Log10(maxAbs))))
 		}
 	}
 	mean := make([]float64, K)
-	tot := 0.0
-	for i := 0; i < n; i++ {
-		wi := w(i)
-		tot += wi
-		for k := 0; k < K; k++ {
-			mean[k] += wi * d.X[i*K+k]
-		}
-	}
 	for k := range mean {
-		mean[k] /= tot
+		mean[k] = cs.sum[k] / cs.tot
 	}
-	C := make([]float64, K*K)
-	for i := 0; i < n; i++ {
-		wi := w(i)
-		row := d.X[i*K : (i+1)*K]
-		for a := 0; a < K; a++ {
-			va := wi * (row[a] - mean[a])
-			for b := a; b < K; b++ {
-				C[a*K+b] += va * (row[b] - mean[b])
-			}
-		}
-	}
+	tot, C := cs.tot, d.columnSums(workers, mean).cross
 	sd := make([]float64, K)
 	for k := 0; k < K; k++ {
 		sd[k] = math.Sqrt(C[k*K+k] / tot)
 		scale := math.Max(math.Abs(mean[k]), sd[k])
 		if sd[k] == 0 || sd[k] <= 1e-12*scale {
-			return inputErr("predictor %q is constant (every row has %g): it cannot be estimated alongside the cutpoints; remove it", d.Predictors[k], mean[k])
+			return nil, inputErr("predictor %q is constant (every row has %g): it cannot be estimated alongside the cutpoints; remove it", d.Predictors[k], mean[k])
 		}
 	}
 	corr := mat.NewSymDense(K, nil)
@@ -116,14 +90,119 @@ func (d *Data) checkRank(m Model) error {
 								with = append(with, d.Predictors[a])
 							}
 						}
-						return inputErr("predictor %q is perfectly collinear with %s (and the constant): remove one of them", d.Predictors[k], strings.Join(quoteAll(with), ", "))
+						return nil, inputErr("predictor %q is perfectly collinear with %s (and the constant): remove one of them", d.Predictors[k], strings.Join(quoteAll(with), ", "))
 					}
 				}
 			}
 		}
 		kept = append(kept, k)
 	}
-	return nil
+	for k := range sd {
+		if sd[k] == 0 {
+			sd[k] = 1
+		}
+	}
+	return sd, nil
+}
+
+// sumStripes is the number of runs of rows whose sums columnSums forms
+// separately (in parallel) and adds in order: fixed, so that the sums do
+// not depend on the workers.
+const sumStripes = 16
+
+// colSums are sums over the rows of the predictors.
+type colSums struct {
+	tot    float64   // sum of the weights
+	sum    []float64 // K: weighted sums
+	maxAbs []float64 // K: largest absolute value (every row)
+	at     []int     // K: the first row with it
+	cross  []float64 // K x K: weighted cross-products of the centred columns
+}
+
+// columnSums forms, without mean, the weights' total, the weighted sums
+// and the largest absolute values of the predictors; with the means, the
+// weighted cross-products of the predictors less their means. The rows
+// are taken a block at a time, column-major (Data.columns), in sumStripes
+// runs summed in order.
+func (d *Data) columnSums(workers int, mean []float64) *colSums {
+	n, K := d.N(), len(d.Predictors)
+	nb := (n + blockRows - 1) / blockRows
+	per := (nb + sumStripes - 1) / sumStripes
+	stripes := (nb + per - 1) / per
+	parts := make([]*colSums, stripes)
+	forEach(stripes, workers, func(st int) {
+		c := &colSums{}
+		if mean == nil {
+			c.sum, c.maxAbs, c.at = make([]float64, K), make([]float64, K), make([]int, K)
+		} else {
+			c.cross = make([]float64, K*K)
+		}
+		u := make([]float64, blockRows*K)
+		for b := st * per; b < min(nb, (st+1)*per); b++ {
+			lo := b * blockRows
+			rows := min(lo+blockRows, n) - lo
+			cols := u[:rows*K]
+			d.columns(lo, rows, cols)
+			var w []float64
+			if d.Weights != nil {
+				w = d.Weights[lo : lo+rows]
+			}
+			if mean == nil {
+				c.addSums(cols, rows, lo, w)
+				continue
+			}
+			for k := 0; k < K; k++ {
+				v := cols[k*rows : (k+1)*rows]
+				for i := range v {
+					v[i] -= mean[k]
+				}
+			}
+			symCross(c.cross, K, cols, K, rows, w)
+		}
+		parts[st] = c
+	})
+	total := parts[0]
+	for _, c := range parts[1:] {
+		total.tot += c.tot
+		addTo(total.sum, c.sum)
+		addTo(total.cross, c.cross)
+		for k := range total.maxAbs {
+			if c.maxAbs[k] > total.maxAbs[k] {
+				total.maxAbs[k], total.at[k] = c.maxAbs[k], c.at[k]
+			}
+		}
+	}
+	if mean != nil {
+		mirrorLower(total.cross, K)
+	}
+	return total
+}
+
+// addSums adds a block's rows (first row lo; columns cols, column-major)
+// to the weights' total, the weighted sums and the largest values.
+func (c *colSums) addSums(cols []float64, rows, lo int, w []float64) {
+	for i := 0; i < rows; i++ {
+		if w == nil {
+			c.tot++
+		} else {
+			c.tot += w[i]
+		}
+	}
+	for k := range c.sum {
+		v := cols[k*rows : (k+1)*rows]
+		s := 0.0
+		for i, x := range v {
+			if w == nil {
+				s += x
+			} else {
+				s += w[i] * x
+			}
+			if a := math.Abs(x); a > c.maxAbs[k] {
+				c.maxAbs[k], c.at[k] = a, lo+i
+			}
+		}
+		c.sum[k] += s
+	}
 }
 
 // The range of predictor magnitudes (largest absolute value) a fit takes.

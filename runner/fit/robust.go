@@ -27,15 +27,16 @@ func (p *problem) rowScores(theta []float64, fn func(i int, s []float64)) error 
 	g := make([]float64, q)
 	s := make([]float64, len(theta))
 	x := p.d
+	xbuf := make([]float64, x.K)
 	for i := 0; i < x.n; i++ {
 		if x.weight(i) == 0 {
 			continue
 		}
-		p.linear(c, i, L)
+		p.linear(c, i, L, xbuf)
 		if _, ok := p.ker.eval(L, x.y[i], g, nil); !ok {
 			return fmt.Errorf("row %d has a zero probability at the estimates", i+1)
 		}
-		xi := x.x[i*x.K : (i+1)*x.K]
+		xi := x.row(i, xbuf)
 		u := p.rowColumns(theta, xi)
 		sg := 0.0
 		for m := 0; m < q; m++ {

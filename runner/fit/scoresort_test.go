@@ -1,0 +1,126 @@
+package fit
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"slices"
+	"sort"
+	"strings"
+	"testing"
+)
+
+// TestSortByScoreStable: the radix sort of the score groups gives the order
+// of a stable comparison sort, ties (many, and -0 against 0) included, on
+// lists long enough to take it, whole and as subsets of the rows.
+func TestSortByScoreStable(t *testing.T) {
+	rng := rand.New(rand.NewPCG(3, 9))
+	for _, n := range []int{600, 5000, 100000} {
+		score := make([]float64, n)
+		for i := range score {
+			switch rng.IntN(5) {
+			case 0:
+				score[i] = float64(rng.IntN(7)) - 3 // ties, negative values, 0
+			case 1:
+				score[i] = math.Copysign(0, -1)
+			case 2:
+				score[i] = -rng.ExpFloat64() * 1e-300
+			default:
+				score[i] = 1 + rng.Float64()
+			}
+		}
+		for _, every := range []int{1, 3} {
+			var order []int
+			for i := 0; i < n; i += every {
+				order = append(order, i)
+			}
+			want := append([]int(nil), order...)
+			sort.SliceStable(want, func(a, b int) bool { return score[want[a]] < score[want[b]] })
+			sortByScore(order, score)
+			for j := range order {
+				if order[j] != want[j] {
+					t.Fatalf("n %d, every %d: position %d has row %d, want %d", n, every, j, order[j], want[j])
+				}
+			}
+		}
+	}
+}
+
+// TestIndicatorsAsGroups: a fit whose group indicators are held as each
+// row's group (Data.ind, as LipsitzTest fits them) equals, bit for bit, the
+// fit of the same columns written out in X: on rows (gsswarm, Long 1997)
+// on weighted cells (housing, Madsen 1976) and on those cells expanded to
+// one row per person, which the engine merges back (compressed), for a
+// parallel and a nonparallel model.
+func TestIndicatorsAsGroups(t *testing.T) {
+	for _, c := range []struct {
+		name   string
+		preds  []string
+		expand bool
+	}{
+		{"gsswarm", []string{"yr89", "male", "white", "age", "ed", "prst"}, false},
+		{"housing", []string{"inflmed", "inflhigh", "apartment", "atrium", "terrace", "conthigh"}, false},
+		{"housing", []string{"inflmed", "inflhigh", "apartment", "atrium", "terrace", "conthigh"}, true},
+	} {
+		t.Logf("data: %s", refSources[c.name])
+		d := loadRef(t, c.name).data(c.preds)
+		n, K, G := d.N(), len(c.preds), 4
+		var cell []int // expanded: the cell of each row
+		if c.expand {
+			ex := &Data{J: d.J, Predictors: d.Predictors}
+			for i, y := range d.Y {
+				for r := 0; r < int(d.Weights[i]); r++ {
+					cell = append(cell, i)
+					ex.Y = append(ex.Y, y)
+					ex.X = append(ex.X, d.X[i*K:(i+1)*K]...)
+				}
+			}
+			d, n = ex, len(ex.Y)
+			if des := d.design().compressed(); des.n >= n {
+				t.Fatalf("expanded housing: %d rows not merged", n)
+			}
+		}
+		group := make([]int, n)
+		for i := range group {
+			group[i] = (i * 7) % G
+			if c.expand {
+				group[i] = (cell[i] * 7) % G // constant within cells
+			}
+		}
+		names := append([]string(nil), c.preds...)
+		for g := 1; g < G; g++ {
+			names = append(names, fmt.Sprintf("g%d", g))
+		}
+		held := &Data{Y: d.Y, J: d.J, X: d.X, Weights: d.Weights, Predictors: names, ind: &indicators{group: group, count: G - 1}}
+		dense := &Data{Y: d.Y, J: d.J, Weights: d.Weights, Predictors: names, X: make([]float64, n*(K+G-1))}
+		for i := 0; i < n; i++ {
+			copy(dense.X[i*(K+G-1):], d.X[i*K:(i+1)*K])
+			if group[i] > 0 {
+				dense.X[i*(K+G-1)+K+group[i]-1] = 1
+			}
+		}
+		for _, e := range []Effect{Parallel, Nonparallel} {
+			m := Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(K+G-1, Parallel)}
+			m.Effects[0] = e
+			a, errA := Fit(held, m, Options{})
+			b, errB := Fit(dense, m, Options{})
+			if errA != nil || errB != nil {
+				t.Fatalf("%s: %v, %v", c.name, errA, errB)
+			}
+			if a.LogLik != b.LogLik || !slices.Equal(a.Estimates, b.Estimates) || !slices.Equal(a.StdErrors, b.StdErrors) || a.Status != b.Status {
+				t.Errorf("%s %s: held %v %v, dense %v %v", c.name, m.Name(), a.LogLik, a.Estimates, b.LogLik, b.Estimates)
+			}
+		}
+		// A group column that repeats a predictor is refused the same way.
+		for i := range group {
+			group[i] = 0
+			if d.X[i*K+1] == 1 {
+				group[i] = 1
+			}
+		}
+		one := &Data{Y: d.Y, J: d.J, X: d.X, Weights: d.Weights, Predictors: append(append([]string(nil), c.preds...), "g1"), ind: &indicators{group: group, count: 1}}
+		if _, err := Fit(one, Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(K+1, Parallel)}, Options{}); err == nil || !strings.Contains(err.Error(), "collinear") {
+			t.Errorf("%s: indicator equal to %s: got %v", c.name, c.preds[1], err)
+		}
+	}
+}
