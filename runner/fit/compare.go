@@ -50,6 +50,14 @@ type kernel struct {
 	nEq      int // J-1
 }
 
+// positive reports whether no category probability can be negative
+// whatever L: the stage and adjacent probabilities are exponentials, and
+// a binary cumulative model has F(L) and 1 - F(L). (Cumulative models of
+// more categories have negative ones when L is not increasing.)
+func (k *kernel) positive() bool {
+	return k.cmp != Cumulative || k.nEq == 1
+}
+
 // pairNeeded reports whether d2 log P / dL_m dL_l can be non-zero (m <= l).
 func (k *kernel) pairNeeded(m, l int) bool {
 	switch k.cmp {

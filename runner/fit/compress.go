@@ -6,8 +6,9 @@ import (
 )
 
 // compressed returns the design with identical rows (same predictors,
-// indicator group, outcome and offset) merged into one row carrying the summed weight, in
-// order of first appearance, when that at least halves the rows; otherwise
+// indicator group, outcome and offset) merged into one row carrying the
+// summed weight, in order of first appearance, when that at least halves
+// the rows; otherwise
 // d itself. Tabulated data and registers of categorical predictors fit in
 // time proportional to their distinct rows. mult counts the original rows
 // behind each merged row (for row-level diagnostics).
@@ -16,38 +17,27 @@ func (d *design) compressed() *design {
 	if n < 64 {
 		return d
 	}
+	key := d.rowKinds()
 	// A sample decides cheaply whether merging can pay.
 	sample := min(n, 4096)
-	keyOf := func(i int, buf []byte) []byte {
-		buf = buf[:0]
-		for _, v := range d.x[i*K : (i+1)*K] {
-			buf = binary.LittleEndian.AppendUint64(buf, math.Float64bits(v))
-		}
-		buf = binary.LittleEndian.AppendUint64(buf, uint64(d.y[i]))
-		if d.group != nil {
-			buf = binary.LittleEndian.AppendUint64(buf, uint64(d.group[i]))
-		}
-		if d.off != nil {
-			buf = binary.LittleEndian.AppendUint64(buf, math.Float64bits(d.off[i]))
-		}
-		return buf
-	}
-	buf := make([]byte, 0, 8*(K+3))
-	seen := make(map[string]struct{}, sample)
+	seen := make(map[int]struct{}, sample)
 	for i := 0; i < sample; i++ {
-		seen[string(keyOf(i, buf))] = struct{}{}
+		seen[key(i)] = struct{}{}
 	}
 	if 4*len(seen) > 3*sample {
 		return d
 	}
-	index := make(map[string]int)
+	var index []int // kind -> merged row (-1: none yet)
 	var rows []int
 	for i := 0; i < n; i++ {
 		if d.weight(i) == 0 {
 			continue
 		}
-		k := string(keyOf(i, buf))
-		if _, ok := index[k]; !ok {
+		k := key(i)
+		for len(index) <= k {
+			index = append(index, -1)
+		}
+		if index[k] < 0 {
 			if 2*len(rows) >= n {
 				return d // too few repeats after all
 			}
@@ -78,9 +68,46 @@ func (d *design) compressed() *design {
 		if w == 0 {
 			continue
 		}
-		j := index[string(keyOf(i, buf))]
+		j := index[key(i)]
 		c.w[j] += w
 		c.mult[j]++
 	}
 	return c
+}
+
+// rowKinds returns a function giving each row a number, the same for rows
+// that are the same (predictors, indicator group, outcome and offset) and
+// different otherwise, numbered from 0 without gaps in the order first
+// asked. Rows of the outcome alone (no predictor, no offset: the
+// thresholds-only model) are numbered by their category.
+func (d *design) rowKinds() func(i int) int {
+	K := d.width()
+	if K == 0 && d.off == nil && d.group == nil {
+		return func(i int) int { return d.y[i] }
+	}
+	buf := make([]byte, 0, 8*(K+3))
+	keyOf := func(i int) []byte {
+		buf = buf[:0]
+		for _, v := range d.x[i*K : (i+1)*K] {
+			buf = binary.LittleEndian.AppendUint64(buf, math.Float64bits(v))
+		}
+		buf = binary.LittleEndian.AppendUint64(buf, uint64(d.y[i]))
+		if d.group != nil {
+			buf = binary.LittleEndian.AppendUint64(buf, uint64(d.group[i]))
+		}
+		if d.off != nil {
+			buf = binary.LittleEndian.AppendUint64(buf, math.Float64bits(d.off[i]))
+		}
+		return buf
+	}
+	ids := map[string]int{}
+	return func(i int) int {
+		k := keyOf(i)
+		if id, ok := ids[string(k)]; ok {
+			return id
+		}
+		id := len(ids)
+		ids[string(k)] = id
+		return id
+	}
 }

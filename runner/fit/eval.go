@@ -3,6 +3,7 @@ package fit
 import (
 	"math"
 	"runtime"
+	"slices"
 	"sync"
 	"sync/atomic"
 	"time"
@@ -85,8 +86,12 @@ type problem struct {
 	freeOf   []int    // predictor -> its per-equation column (or -1)
 	parOf    []int    // predictor -> its parallel column (or -1)
 	pairs    [][2]int
-	prof     *profile  // optional timing of the cross-products
-	scratch  sync.Pool // *scratch, reused across evaluations
+	// parInd is the number of indicator columns (design.group) that end
+	// the parallel columns and are summed by group rather than held in the
+	// block's columns (0: none, or they are held like any column).
+	parInd  int
+	prof    *profile  // optional timing of the cross-products
+	scratch sync.Pool // *scratch, reused across evaluations
 }
 
 func newProblem(d *design, m Model, ly *layout, workers int) *problem {
@@ -109,6 +114,9 @@ func newProblem(d *design, m Model, ly *layout, workers int) *problem {
 	for g := range ly.groups {
 		p.freeCols = append(p.freeCols, column{kind: groupColumn, index: g})
 	}
+	if d.groups > 0 && !slices.ContainsFunc(m.Effects[d.width():], func(e Effect) bool { return e != Parallel }) {
+		p.parInd = d.groups
+	}
 	for a := 0; a < q; a++ {
 		for b := a; b < q; b++ {
 			if p.ker.pairNeeded(a, b) {
@@ -125,6 +133,7 @@ func newProblem(d *design, m Model, ly *layout, workers int) *problem {
 // acc holds the sums over rows of one evaluation.
 type acc struct {
 	ll    float64
+	minLP float64 // smallest log-probability of an observed category (rows of positive weight)
 	bad   bool
 	V     []float64   // q x Kf: sum w g_m u_a
 	Vp    []float64   // Kp: sum w (sum_m g_m) x_a
@@ -136,7 +145,7 @@ type acc struct {
 
 func (p *problem) newAcc(order int) *acc {
 	kf, kp := len(p.freeCols), len(p.parCols)
-	a := &acc{order: order}
+	a := &acc{order: order, minLP: math.Inf(1)}
 	if order >= 1 {
 		a.V = make([]float64, p.q*kf)
 		a.Vp = make([]float64, kp)
@@ -156,6 +165,7 @@ func (p *problem) newAcc(order int) *acc {
 
 func (a *acc) add(b *acc) {
 	a.ll += b.ll
+	a.minLP = math.Min(a.minLP, b.minLP)
 	a.bad = a.bad || b.bad
 	addTo(a.V, b.V)
 	addTo(a.Vp, b.Vp)
@@ -345,7 +355,7 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 	if order < 1 {
 		return
 	}
-	p.blockScore(rows, a, s)
+	p.blockScore(lo, rows, a, s)
 	if order < 2 {
 		return
 	}
@@ -353,7 +363,7 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 		t0 := cpuClock()
 		defer func() { p.prof.add(cpuClock() - t0) }()
 	}
-	p.blockInformation(rows, a, s)
+	p.blockInformation(lo, rows, a, s)
 }
 
 // blockColumns fills s.uf with the per-equation columns (Kf x rows) and
@@ -392,7 +402,7 @@ func (p *problem) blockColumns(c *coefs, lo, rows int, s *scratch) {
 			}
 		}
 	}
-	for j, k := range p.parCols {
+	for j, k := range p.parCols[:len(p.parCols)-p.parInd] {
 		column(s.xp[j*rows:(j+1)*rows], k)
 	}
 }
@@ -403,8 +413,18 @@ func (p *problem) blockLinear(c *coefs, lo, rows int, s *scratch) {
 	q := p.q
 	e := s.wt[:rows]
 	clear(e)
-	for j, b := range c.bp {
+	kp0 := len(c.bp) - p.parInd
+	for j, b := range c.bp[:kp0] {
 		axpy(e, b, s.xp[j*rows:(j+1)*rows])
+	}
+	if p.parInd > 0 {
+		// An indicator adds its slope in the rows of its group (and 0, which
+		// changes no sum, elsewhere).
+		for i, g := range p.d.group[lo : lo+rows] {
+			if g > 0 {
+				e[i] += c.bp[kp0+g-1]
+			}
+		}
 	}
 	if p.d.off != nil {
 		addTo(e, p.d.off[lo:lo+rows])
@@ -445,6 +465,9 @@ func (p *problem) blockKernels(c *coefs, lo, rows, order int, expected bool, a *
 		h = s.h
 	}
 	gs := s.gs
+	if p.ker.cmp == Cumulative && q == 1 && !expected {
+		return p.binaryKernels(c, lo, rows, order, a, s)
+	}
 	for i := 0; i < rows; i++ {
 		r := lo + i
 		w := d.weight(r)
@@ -463,6 +486,7 @@ func (p *problem) blockKernels(c *coefs, lo, rows, order int, expected bool, a *
 			return false
 		}
 		a.ll += w * lp
+		a.minLP = math.Min(a.minLP, lp)
 		if order >= 1 {
 			for m := 0; m < q; m++ {
 				gs[m*rows+i] = w * g[m]
@@ -485,9 +509,53 @@ func (p *problem) blockKernels(c *coefs, lo, rows, order int, expected bool, a *
 	return true
 }
 
+// binaryKernels is blockKernels for a cumulative model of two categories
+// (one equation) with observed derivatives: the same values, computed
+// straight from the link's tails (log F for the lower category,
+// log(1 - F) for the upper) without the general kernel's dispatch.
+func (p *problem) binaryKernels(c *coefs, lo, rows, order int, a *acc, s *scratch) bool {
+	d, link, tau := p.d, p.ker.link, c.tau[0]
+	y := d.y[lo : lo+rows]
+	eta, gs, hb := s.eta[:rows], s.gs[:rows], s.hb[:rows]
+	var w []float64
+	if d.w != nil {
+		w = d.w[lo : lo+rows]
+	}
+	for i, yi := range y {
+		wi := 1.0
+		if w != nil {
+			wi = w[i]
+		}
+		if wi == 0 {
+			gs[i], hb[i] = 0, 0
+			continue
+		}
+		L := tau - eta[i]
+		var t tail
+		if yi == 0 {
+			t = link.lower(L)
+		} else {
+			t = link.upper(L)
+		}
+		if math.IsInf(t.v, -1) || math.IsNaN(t.v) {
+			return false
+		}
+		a.ll += wi * t.v
+		a.minLP = math.Min(a.minLP, t.v)
+		// As the general kernel forms them: 0 plus the tail's derivative.
+		if order >= 1 {
+			gs[i] = wi * (0 + t.d1)
+		}
+		if order >= 2 {
+			hb[i] = wi * (0 + t.d2)
+		}
+	}
+	return true
+}
+
 // blockScore adds the score pieces: V (q x Kf) += G' Uf and Vp += Xp' (G 1),
 // G the weighted first derivatives of the rows.
-func (p *problem) blockScore(rows int, a *acc, s *scratch) {
+func (p *problem) blockScore(lo, rows int, a *acc, s *scratch) {
 	q := p.q
 	kf, kp := len(p.freeCols), len(p.parCols)
 	fullCross(a.V, kf, s.gs, q, s.uf, kf, rows, nil)
@@ -499,7 +567,15 @@ func (p *problem) blockScore(rows int, a *acc, s *scratch) {
 	for m := 1; m < q; m++ {
 		addTo(sg, s.gs[m*rows:(m+1)*rows])
 	}
-	fullCross(a.Vp, kp, sg, 1, s.xp, kp, rows, nil)
+	kp0 := kp - p.parInd
+	fullCross(a.Vp, kp, sg, 1, s.xp, kp0, rows, nil)
+	if p.parInd > 0 {
+		for i, g := range p.d.group[lo : lo+rows] {
+			if g > 0 {
+				a.Vp[kp0+g-1] += sg[i]
+			}
+		}
+	}
 }
 
 // blockInformation adds the information pieces, lower triangles of the
@@ -509,7 +585,7 @@ func (p *problem) blockScore(rows int, a *acc, s *scratch) {
 // product), and the parallel x parallel block (weights sum_ml H_ml): the
 // parallel columns enter one weighted cross-product, whatever the number
 // of equations.
-func (p *problem) blockInformation(rows int, a *acc, s *scratch) {
+func (p *problem) blockInformation(lo, rows int, a *acc, s *scratch) {
 	q, qq := p.q, p.q*p.q
 	kf, kp := len(p.freeCols), len(p.parCols)
 	wt := s.wt[:rows]
@@ -548,6 +624,36 @@ func (p *problem) blockInformation(rows int, a *acc, s *scratch) {
 			}
 		}
 	}
-	fullCross(a.R, q*kf, s.xp, kp, s.ru, q*kf, rows, nil)
-	symCross(a.T, kp, s.xp, kp, rows, wt)
+	kp0 := kp - p.parInd
+	fullCross(a.R, q*kf, s.xp, kp0, s.ru, q*kf, rows, nil)
+	symCross(a.T, kp, s.xp, kp0, rows, wt)
+	if p.parInd > 0 {
+		p.indicatorInformation(lo, rows, kp0, a, s)
+	}
+}
+
+// indicatorInformation adds the information pieces of the indicator
+// columns, row by row into the rows of R and T of each row's group: the
+// terms the cross-products of blockInformation would form with the
+// indicators held as columns, in the same order (an indicator is 1 in its
+// group, where its product is the other factor exactly, and 0 elsewhere,
+// where it adds 0), so the sums are the same to the last bit.
+func (p *problem) indicatorInformation(lo, rows, kp0 int, a *acc, s *scratch) {
+	q, kf, kp := p.q, len(p.freeCols), len(p.parCols)
+	wt := s.wt[:rows]
+	for i, g := range p.d.group[lo : lo+rows] {
+		if g == 0 {
+			continue
+		}
+		j := kp0 + g - 1
+		r := a.R[j*q*kf : (j+1)*q*kf]
+		for c := range r {
+			r[c] += s.ru[c*rows+i]
+		}
+		t := a.T[j*kp : j*kp+j+1]
+		for b := 0; b < kp0; b++ {
+			t[b] += wt[i] * s.xp[b*rows+i]
+		}
+		t[j] += wt[i]
+	}
 }

@@ -24,6 +24,10 @@ type source struct {
 	// fitted returns the smallest fitted probability of an observed
 	// category and the number of rows with a negative category probability.
 	fitted func(theta []float64) (minP float64, neg int, err error)
+	// positive: no category probability of the model can be negative (the
+	// evaluations' smallest log-probability then gives the smallest
+	// fitted probability, and fitted is not needed).
+	positive bool
 	// loglik evaluates the log-likelihood (order 0 is all finish asks of it).
 	loglik evalFunc
 	// expected returns the expected second derivatives (nil: the source
@@ -49,6 +53,7 @@ func localSource(d *Data, pr *problem, sd []float64) *source {
 			minP, neg := pr.fittedCheck(theta)
 			return minP, neg, nil
 		},
+		positive: pr.ker.positive(),
 		loglik:   pr.evaluator(false),
 		expected: pr.expectedHessian,
 		sd:       sd,
@@ -70,7 +75,9 @@ func finish(src *source, m Model, ly *layout, st newtonState, opt Options) (*Res
 	// Phase 1: the estimates as reached.
 	r := src.newResult(m, ly, st)
 	var err error
-	if r.MinFittedProb, r.NegativeRows, err = src.fitted(st.theta); err != nil {
+	if src.positive && st.minKnown {
+		r.MinFittedProb = math.Exp(st.minLogP)
+	} else if r.MinFittedProb, r.NegativeRows, err = src.fitted(st.theta); err != nil {
 		return nil, err
 	}
 	if math.IsInf(st.ll, -1) {

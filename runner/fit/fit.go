@@ -241,7 +241,7 @@ func fitValid(d *Data, m Model, opt Options, sh *shared) (*Result, error) {
 		// A fit that is not usable from there is made again from the
 		// usual start, so that it reads as it does without the stage.
 		if st, ok := pr.subsampleNewton(sh.subsample(d), start, opt); ok {
-			if res, err := finish(localSource(d, pr), m, ly, st, opt); err == nil && res.OK() {
+			if res, err := finish(localSource(d, pr, sd), m, ly, st, opt); err == nil && res.OK() {
 				return res, nil
 			}
 		}

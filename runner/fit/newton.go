@@ -17,6 +17,10 @@ type newtonState struct {
 	reason    string
 	decrement float64
 	repaired  int // iterations where the information was not positive definite
+	// minLogP is the smallest log-probability of an observed category at
+	// theta, when the evaluations give it (minKnown).
+	minLogP  float64
+	minKnown bool
 }
 
 // evalOut is one evaluation of a log-likelihood: its value and, when asked
@@ -26,6 +30,10 @@ type evalOut struct {
 	bad   bool // an observed category has a non-positive probability
 	order int
 	g, H  []float64
+	// minLogP: the smallest log-probability of an observed category, when
+	// minKnown.
+	minLogP  float64
+	minKnown bool
 }
 
 // evalFunc evaluates a log-likelihood at theta to the given order.
@@ -41,7 +49,7 @@ func (p *problem) newton(theta0 []float64, maxIter int, scoring bool) newtonStat
 func (p *problem) evaluator(scoring bool) evalFunc {
 	return func(th []float64, order int) evalOut {
 		a := p.evaluate(th, order, scoring)
-		out := evalOut{ll: a.ll, bad: a.bad || math.IsNaN(a.ll) || math.IsInf(a.ll, 0), order: order}
+		out := evalOut{ll: a.ll, bad: a.bad || math.IsNaN(a.ll) || math.IsInf(a.ll, 0), order: order, minLogP: a.minLP, minKnown: true}
 		if out.bad {
 			return out
 		}
@@ -83,6 +91,7 @@ func newtonLoopStop(theta0 []float64, maxIter int, ev evalFunc, stop stopFunc) n
 	for it := 0; ; it++ {
 		g, H := a.g, a.H
 		st.theta, st.ll, st.grad, st.hess, st.iters = theta, ll, g, H, it
+		st.minLogP, st.minKnown = a.minLogP, a.minKnown
 		d, dec, pd := newtonDirection(H, g)
 		if !pd {
 			st.repaired++
@@ -94,6 +103,7 @@ func newtonLoopStop(theta0 []float64, maxIter int, ev evalFunc, stop stopFunc) n
 			next := addScaled(theta, d, 1)
 			if b := ev(next, 2); !b.bad && b.ll >= ll-1e-12*scale {
 				st.theta, st.ll, st.grad, st.hess = next, b.ll, b.g, b.H
+				st.minLogP, st.minKnown = b.minLogP, b.minKnown
 			}
 			st.converged = true
 			st.reason = "converged"

@@ -6,6 +6,7 @@ import (
 	"strings"
 	"testing"
 
+	"gonum.org/v1/gonum/floats"
 	"gonum.org/v1/gonum/stat"
 	"gonum.org/v1/gonum/stat/distuv"
 )
@@ -114,22 +115,62 @@ func mzDirect(d *Data, r *Result) float64 {
 
 // TestNullModelEveryComparison: the thresholds-only fit of every comparison
 // and link reaches sum_j n_j log(n_j/N) (housing, frequency weights,
-// Madsen 1976); with an offset it is a real fit and at least as good as
-// the offset-free thresholds shifted by the mean offset.
+// Madsen 1976), and its thresholds are the closed forms that reproduce the
+// observed shares p_j (docs/models.md, "The three comparisons"): F^-1 of
+// P(y <= m) (cumulative), of p_m / P(y >= m) (stage), of
+// P(y <= m) / P(y <= m+1) (stage backward, 0-based m), of
+// p_m / (p_m + p_{m+1}) (adjacent); the same on the data expanded to one
+// row per person (which the engine tabulates again). With an offset it is
+// a real fit and at least as good as the offset-free thresholds shifted by
+// the mean offset.
 func TestNullModelEveryComparison(t *testing.T) {
 	t.Logf("data: %s", refSources["housing"])
 	rs := loadRef(t, "housing")
 	d := rs.data([]string{"apartment", "atrium", "terrace"})
 	want := nullLogLikClosedForm(d)
+	p := make([]float64, d.J)
+	for i, y := range d.Y {
+		p[y] += d.Weights[i]
+	}
+	floats.Scale(1/floats.Sum(p), p)
+	ex := &Data{J: d.J}
+	for i, y := range d.Y {
+		for r := 0; r < int(d.Weights[i]); r++ {
+			ex.Y = append(ex.Y, y)
+		}
+	}
 	for _, c := range []Comparison{Cumulative, Stage, Adjacent} {
-		for _, l := range []Link{Logit, Probit, Cloglog} {
-			m := Model{Comparison: c, Link: l, Effects: allEffects(3, Parallel)}
-			null, err := FitNull(d, m, Options{})
-			if err != nil || !null.OK() {
-				t.Fatalf("%v %v: %v", c, l, err)
+		for _, back := range []bool{false, true} {
+			if back && c != Stage {
+				continue
 			}
-			if math.Abs(null.LogLik-want) > tolLL || null.NParams != d.J-1 {
-				t.Errorf("%s: null LL %.8f (%d params), want %.8f", null.Name, null.LogLik, null.NParams, want)
+			for _, l := range []Link{Logit, Probit, Cloglog, Loglog, Cauchy} {
+				m := Model{Comparison: c, Backward: back, Link: l, Effects: allEffects(3, Parallel)}
+				for _, data := range []*Data{d, ex} {
+					null, err := FitNull(data, m, Options{})
+					if err != nil || !null.OK() {
+						t.Fatalf("%v %v: %v", c, l, err)
+					}
+					if math.Abs(null.LogLik-want) > tolLL || null.NParams != d.J-1 || null.NRows != data.N() {
+						t.Errorf("%s: null LL %.8f (%d params, %d rows), want %.8f", null.Name, null.LogLik, null.NParams, null.NRows, want)
+					}
+					for j, tau := range null.Cutpoints {
+						var share float64
+						switch {
+						case c == Cumulative:
+							share = floats.Sum(p[:j+1])
+						case c == Stage && !back:
+							share = p[j] / floats.Sum(p[j:])
+						case c == Stage:
+							share = floats.Sum(p[:j+1]) / floats.Sum(p[:j+2])
+						default:
+							share = p[j] / (p[j] + p[j+1])
+						}
+						if closed := l.Quantile(share); math.Abs(tau-closed) > 1e-9*math.Max(1, math.Abs(closed)) {
+							t.Errorf("%s (%d rows): tau[%d] = %.12f, closed form %.12f", null.Name, data.N(), j+1, tau, closed)
+						}
+					}
+				}
 			}
 		}
 	}

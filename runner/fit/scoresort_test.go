@@ -50,9 +50,14 @@ func TestSortByScoreStable(t *testing.T) {
 // row's group (Data.ind, as LipsitzTest fits them) equals, bit for bit, the
 // fit of the same columns written out in X: on rows (gsswarm, Long 1997)
 // on weighted cells (housing, Madsen 1976) and on those cells expanded to
-// one row per person, which the engine merges back (compressed), for a
-// parallel and a nonparallel model.
+// one row per person, which the engine merges back (compressed); with
+// parallel indicators (summed by group) and a nonparallel one (held as a
+// column of the blocks); through the subsample stage of large fits.
 func TestIndicatorsAsGroups(t *testing.T) {
+	// Fits of 1000 rows or more take the subsample stage (gsswarm).
+	old := subsampleAbove
+	subsampleAbove = 1000
+	t.Cleanup(func() { subsampleAbove = old })
 	for _, c := range []struct {
 		name   string
 		preds  []string
@@ -99,9 +104,11 @@ func TestIndicatorsAsGroups(t *testing.T) {
 				dense.X[i*(K+G-1)+K+group[i]-1] = 1
 			}
 		}
-		for _, e := range []Effect{Parallel, Nonparallel} {
+		for _, k := range []int{-1, 0, K} { // all parallel; a predictor or an indicator nonparallel
 			m := Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(K+G-1, Parallel)}
-			m.Effects[0] = e
+			if k >= 0 {
+				m.Effects[k] = Nonparallel
+			}
 			a, errA := Fit(held, m, Options{})
 			b, errB := Fit(dense, m, Options{})
 			if errA != nil || errB != nil {

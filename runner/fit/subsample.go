@@ -38,7 +38,11 @@ func (d *design) subsample(J int) *design {
 	}
 	rng := rand.New(rand.NewPCG(subsampleSeed, uint64(d.n)))
 	m := (d.n + subsampleStride - 1) / subsampleStride
-	s := &design{K: d.K, x: make([]float64, 0, m*d.K), y: make([]int, 0, m)}
+	wd := d.width()
+	s := &design{K: d.K, groups: d.groups, x: make([]float64, 0, m*wd), y: make([]int, 0, m)}
+	if d.group != nil {
+		s.group = make([]int, 0, m)
+	}
 	if d.w != nil {
 		s.w = make([]float64, 0, m)
 	}
@@ -47,8 +51,11 @@ func (d *design) subsample(J int) *design {
 	}
 	for lo := 0; lo < d.n; lo += subsampleStride {
 		i := lo + rng.IntN(min(subsampleStride, d.n-lo))
-		s.x = append(s.x, d.x[i*d.K:(i+1)*d.K]...)
+		s.x = append(s.x, d.x[i*wd:(i+1)*wd]...)
 		s.y = append(s.y, d.y[i])
+		if d.group != nil {
+			s.group = append(s.group, d.group[i])
+		}
 		if d.w != nil {
 			s.w = append(s.w, d.w[i])
 		}
