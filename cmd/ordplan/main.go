@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"runtime/debug"
 	"strings"
 
 	"ordplan/render"
@@ -140,6 +141,11 @@ type fitFlags struct {
 // cmdFit fits one model from the command line, in phases: the flags, their
 // checks, the model they describe, the fit (here or over partitions), and
 // the table or JSON it prints.
+// fitGCPercent is the garbage collector's target of `ordplan fit`: a new
+// cycle when the heap has grown by this percentage of what the last one
+// kept.
+const fitGCPercent = 25
+
 func cmdFit(args []string, stdout, stderr io.Writer) int {
 	fs := newFlags("fit", stderr)
 	f := defineFitFlags(fs)
@@ -157,6 +163,10 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 	if *f.partitions != "" || *f.queue.url != "" {
 		return fitPartitioned(s, f, splitList(*f.partitions), stdout, stderr)
 	}
+	// The data, the design and the fits' large arrays hold no pointers, so
+	// collecting garbage more often costs little and keeps the peak memory
+	// near what is in use (within 3 times the design matrix at n = 1e6).
+	defer debug.SetGCPercent(debug.SetGCPercent(fitGCPercent))
 	res, ds, checks, err := runner.FitOneChecked(s)
 	if err != nil {
 		return fail(stderr, err)

@@ -67,8 +67,9 @@ func GroupByScore(d *Data, r *Result, groups int) (*ScoreGroups, error) {
 	for i := range order {
 		order[i] = i
 	}
-	raw := make([]int, n)
+	raw := make([]int, n) // the group of each row, renumbered in place below
 	cutByScore(order, score, w, groups, raw)
+	order = nil
 	// Renumber the groups that received weight: 0, 1, ...
 	used := make([]float64, groups)
 	for i := 0; i < n; i++ {
@@ -84,7 +85,7 @@ func GroupByScore(d *Data, r *Result, groups int) (*ScoreGroups, error) {
 		}
 	}
 	t := &ScoreGroups{Groups: G, Categories: r.Categories, Low: make([]float64, G), High: make([]float64, G), Weight: make([]float64, G),
-		Observed: make([][]float64, G), Expected: make([][]float64, G), group: make([]int, n)}
+		Observed: make([][]float64, G), Expected: make([][]float64, G), group: raw}
 	for g := 0; g < G; g++ {
 		t.Low[g], t.High[g] = math.Inf(1), math.Inf(-1)
 		t.Observed[g], t.Expected[g] = make([]float64, J), make([]float64, J)
@@ -241,17 +242,15 @@ func sortByScore(order []int, score []float64) {
 			break
 		}
 	}
-	if len(order) < 512 || !finite {
+	if len(order) < 512 || !finite || len(order) > math.MaxInt32 {
 		sort.SliceStable(order, func(a, b int) bool { return score[order[a]] < score[order[b]] })
 		return
 	}
-	type keyed struct {
-		key uint64
-		row int
-	}
-	a, b := make([]keyed, len(order)), make([]keyed, len(order))
+	n := len(order)
+	keys, keys2 := make([]uint64, n), make([]uint64, n)
+	pos, pos2 := make([]int32, n), make([]int32, n) // positions in order
 	for j, i := range order {
-		a[j] = keyed{orderedBits(score[i]), i}
+		keys[j], pos[j] = orderedBits(score[i]), int32(j)
 	}
 	// Least significant digit first; each pass is stable, so rows of equal
 	// key keep their order.
@@ -260,10 +259,10 @@ func sortByScore(order []int, score []float64) {
 	count := make([]int, 1<<bits)
 	for shift := 0; shift < 64; shift += bits {
 		clear(count)
-		for _, e := range a {
-			count[e.key>>shift&mask]++
+		for _, k := range keys {
+			count[k>>shift&mask]++
 		}
-		if count[a[0].key>>shift&mask] == len(a) {
+		if count[keys[0]>>shift&mask] == n {
 			continue // one digit for every row: the pass would not move any
 		}
 		sum := 0
@@ -271,15 +270,19 @@ func sortByScore(order []int, score []float64) {
 			count[d] = sum
 			sum += c
 		}
-		for _, e := range a {
-			d := e.key >> shift & mask
-			b[count[d]] = e
+		for j, k := range keys {
+			d := k >> shift & mask
+			keys2[count[d]], pos2[count[d]] = k, pos[j]
 			count[d]++
 		}
-		a, b = b, a
+		keys, keys2, pos, pos2 = keys2, keys, pos2, pos
 	}
-	for j, e := range a {
-		order[j] = e.row
+	rows := keys2 // free after the passes: the rows in sorted order
+	for j, p := range pos {
+		rows[j] = uint64(order[p])
+	}
+	for j, r := range rows {
+		order[j] = int(r)
 	}
 }
 

@@ -3,6 +3,7 @@ package fit
 import (
 	"math"
 	"strings"
+	"sync"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -130,6 +131,7 @@ func (d *Data) columnSums(workers int, mean []float64) *colSums {
 	per := (nb + sumStripes - 1) / sumStripes
 	stripes := (nb + per - 1) / per
 	parts := make([]*colSums, stripes)
+	var bufs sync.Pool // one block's columns, reused across stripes
 	forEach(stripes, workers, func(st int) {
 		c := &colSums{}
 		if mean == nil {
@@ -137,7 +139,11 @@ func (d *Data) columnSums(workers int, mean []float64) *colSums {
 		} else {
 			c.cross = make([]float64, K*K)
 		}
-		u := make([]float64, blockRows*K)
+		u, _ := bufs.Get().([]float64)
+		if u == nil {
+			u = make([]float64, blockRows*K)
+		}
+		defer bufs.Put(u)
 		for b := st * per; b < min(nb, (st+1)*per); b++ {
 			lo := b * blockRows
 			rows := min(lo+blockRows, n) - lo
