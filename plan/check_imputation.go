@@ -8,7 +8,7 @@ import (
 )
 
 // checkImputation checks data.missing: impute against the other keys:
-// not with data.imputed or weights, the seed's default, and every column
+// not with data.imputed or sampling weights, the seed's default, and every column
 // model names an imputed column of a kind its model can impute.
 func (d *decoder) checkImputation(p *Plan) {
 	im := p.Data.Imputation
@@ -21,8 +21,8 @@ func (d *decoder) checkImputation(p *Plan) {
 	if p.Data.Imputed != nil {
 		d.errAt("data.missing", "impute makes the imputed sets, while data.imputed names sets made elsewhere; give one or the other")
 	}
-	if p.Data.Weights != "" {
-		d.errAt("data.weights", "imputation by chained equations (data.missing: impute) does not take case weights; impute elsewhere and name the sets under data.imputed, or remove data.weights")
+	if p.Data.Sampling() {
+		d.errAt("data.weight_kind", "imputation by chained equations (data.missing: impute) takes frequency weights (counts of identical units, each imputed on its own), not sampling weights: these are no counts, and imputing under a sampling design needs the design in the imputation models; impute elsewhere and name the sets under data.imputed, or remove data.weights")
 	}
 	if !d.given("data.imputation.seed") {
 		im.Seed = p.Seed

@@ -65,6 +65,14 @@ func chainedSets(a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Data
 	if ds.Incomplete == 0 {
 		return nil, nil, nil, errNothingToImpute
 	}
+	var notes []string
+	if ds.Weights != nil {
+		rows := ds.N
+		if ds, err = expandCounts(ds); err != nil {
+			return nil, nil, nil, fmt.Errorf("%s: data.weights: %v (data.missing: impute, outcome %q)", a.Source, err, r.Outcome)
+		}
+		notes = append(notes, fmt.Sprintf("The frequency weights count identical units: for imputation each of the %d rows was expanded into as many rows as its weight, %d rows in all, and every unit was imputed on its own; the imputed sets and their row counts are those of the expanded rows", rows, ds.N))
+	}
 	im := a.Imputation
 	cols := chainedColumns(im, r, ds)
 	stream := uint64(slices.IndexFunc(a.Outcomes, func(o Reading) bool { return o.Outcome == r.Outcome }))
@@ -87,12 +95,59 @@ func chainedSets(a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Data
 	run := &ImputedRun{M: im.Sets, Source: "chained", Files: []string{a.DataFile}, Rows: ds.N, Sets: fds, Data: sets,
 		Chained: &ChainedRecord{Outcome: r.Outcome, Method: "chained equations", Sets: im.Sets, Iterations: im.Iterations, Seed: im.Seed,
 			Stream: stream, Donors: chainedDonors, RowsIncomplete: ds.Incomplete, Visits: res.Visits, Models: res.Models, Trace: res.Trace,
-			Notes: res.Notes, ConvergenceTable: im.ConvergenceTable}}
+			Notes: append(notes, res.Notes...), ConvergenceTable: im.ConvergenceTable}}
 	for k, set := range sets {
 		run.sources = append(run.sources, setSource{name: fmt.Sprintf("imputed set %d of %s.csv", k+1, r.Outcome),
 			bytes: func() ([]byte, error) { return setCSV(set, r.Options) }, options: setOptions(set, r.Options)})
 	}
 	return run, sets, dz, nil
+}
+
+// maxExpanded bounds the rows frequency weights expand into for
+// imputation.
+const maxExpanded = 5_000_000
+
+// expandCounts turns frequency weights into rows: a row of weight w
+// becomes w rows of weight 1, so that each unit the row counts is imputed
+// on its own, as in the data the weights stand for. The fits of the
+// expanded rows are the weighted fits (a sum over w identical rows is w
+// times the row's term).
+func expandCounts(ds *data.Dataset) (*data.Dataset, error) {
+	total := 0
+	for i, w := range ds.Weights {
+		if w != math.Trunc(w) || w < 1 {
+			return nil, fmt.Errorf("%s: frequency weight %s is not a whole number; imputation expands each row into as many rows as its weight (the identical units it counts), so the weights must be counts (for sampling weights, impute elsewhere and name the sets under data.imputed)", ds.Where(ds.Lines[i]), strconv.FormatFloat(w, 'g', -1, 64))
+		}
+		if total += int(w); total > maxExpanded {
+			return nil, fmt.Errorf("the frequency weights add up to more than %d rows, the most imputation expands them into (each row becomes as many rows as its weight); impute elsewhere and name the sets under data.imputed", maxExpanded)
+		}
+	}
+	e := *ds
+	e.N, e.Weights, e.Incomplete = total, nil, 0
+	e.Y, e.X, e.Lines = make([]int, 0, total), make([]float64, 0, total*ds.K), make([]int, 0, total)
+	if ds.Offset != nil {
+		e.Offset = make([]float64, 0, total)
+	}
+	if ds.Cluster != nil {
+		e.Cluster = make([]string, 0, total)
+	}
+	for i, w := range ds.Weights {
+		row := ds.X[i*ds.K : (i+1)*ds.K]
+		incomplete := ds.Y[i] < 0 || slices.ContainsFunc(row, math.IsNaN)
+		for range int(w) {
+			e.Y, e.X, e.Lines = append(e.Y, ds.Y[i]), append(e.X, row...), append(e.Lines, ds.Lines[i])
+			if ds.Offset != nil {
+				e.Offset = append(e.Offset, ds.Offset[i])
+			}
+			if ds.Cluster != nil {
+				e.Cluster = append(e.Cluster, ds.Cluster[i])
+			}
+			if incomplete {
+				e.Incomplete++
+			}
+		}
+	}
+	return &e, nil
 }
 
 // setCSV writes an imputed set as CSV text that the ordinary reader, with

@@ -6,6 +6,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -160,5 +161,53 @@ func TestChainedBadInput(t *testing.T) {
 	os.WriteFile(p.Data.Path, []byte(strings.Join(out, "\n")+"\n"), 0o644)
 	if _, err := Run(p, Options{}); err == nil || !strings.Contains(err.Error(), `data.missing: impute, outcome "y": column x is missing in all 240 rows: there is nothing to impute it from`) {
 		t.Errorf("all missing: %v", err)
+	}
+}
+
+// TestChainedFrequencyWeights: with frequency weights every row is
+// expanded into as many rows as its weight before imputation, so a
+// weighted file gives exactly the imputed sets and the pooled fits of the
+// file with each row repeated (the data the weights count); a note says
+// so.
+func TestChainedFrequencyWeights(t *testing.T) {
+	p := chainedFixture(t, "  imputation: {sets: 3, iterations: 2}")
+	dir := filepath.Dir(p.Data.Path)
+	b, _ := os.ReadFile(p.Data.Path)
+	lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+	weighted, expanded := []string{lines[0] + ",w"}, []string{lines[0]}
+	for i, l := range lines[1:] {
+		w := 1 + i%3
+		weighted = append(weighted, fmt.Sprintf("%s,%d", l, w))
+		for range w {
+			expanded = append(expanded, l)
+		}
+	}
+	os.WriteFile(filepath.Join(dir, "weighted.csv"), []byte(strings.Join(weighted, "\n")+"\n"), 0o644)
+	os.WriteFile(filepath.Join(dir, "expanded.csv"), []byte(strings.Join(expanded, "\n")+"\n"), 0o644)
+	src, _ := os.ReadFile(filepath.Join(dir, "p.yaml"))
+	load := func(name, data string) *plan.Plan {
+		path := filepath.Join(dir, name)
+		os.WriteFile(path, []byte(strings.Replace(string(src), "  file: d.csv\n", data, 1)), 0o644)
+		return loadPlanFile(t, path)
+	}
+	rw := runPlan(t, load("w.yaml", "  file: weighted.csv\n  weights: w\n"), 2).Outcomes[0]
+	re := runPlan(t, load("e.yaml", "  file: expanded.csv\n"), 2).Outcomes[0]
+	if rw.Imputed.Rows != len(expanded)-1 || rw.Imputed.Chained.RowsIncomplete != re.Imputed.Chained.RowsIncomplete {
+		t.Fatalf("rows %d (want %d), incomplete %d and %d", rw.Imputed.Rows, len(expanded)-1, rw.Imputed.Chained.RowsIncomplete, re.Imputed.Chained.RowsIncomplete)
+	}
+	for s := range rw.Imputed.Sets {
+		a, b := rw.Imputed.Sets[s], re.Imputed.Sets[s]
+		if !slices.Equal(a.X, b.X) || !slices.Equal(a.Y, b.Y) || a.Weights != nil {
+			t.Fatalf("imputed set %d differs from the expanded file's", s+1)
+		}
+	}
+	for i, f := range rw.Fits {
+		g := re.Fits[i]
+		if !f.OK() || !g.OK() || !slices.Equal(f.Result.Estimates, g.Result.Estimates) || !slices.Equal(f.Result.StdErrors, g.Result.StdErrors) {
+			t.Errorf("%s: pooled fit differs from the expanded file's", f.ID)
+		}
+	}
+	if !strings.Contains(strings.Join(rw.Notes, "\n"), "each of the 240 rows was expanded into as many rows as its weight, 480 rows in all") {
+		t.Errorf("no note on the expansion: %q", rw.Notes)
 	}
 }

@@ -338,6 +338,31 @@ func allMissing(t *testing.T, dir, id string) {
 	os.WriteFile(filepath.Join(dir, "allmiss.csv"), []byte(strings.Join(lines, "\n")+"\n"), 0o644)
 }
 
+// fractionalWeight writes fracw.csv: d.csv with a frequency weight w (2.5
+// in the second data row, else 1) and b missing in the fourth.
+func fractionalWeight(t *testing.T, dir, id string) {
+	t.Helper()
+	b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+	lines[0] += ",w"
+	for i := 1; i < len(lines); i++ {
+		w := "1"
+		if i == 2 {
+			w = "2.5"
+		}
+		if i == 4 {
+			f := strings.Split(lines[i], ",")
+			f[2] = ""
+			lines[i] = strings.Join(f, ",")
+		}
+		lines[i] += "," + w
+	}
+	os.WriteFile(filepath.Join(dir, "fracw.csv"), []byte(strings.Join(lines, "\n")+"\n"), 0o644)
+}
+
 func imputedFiles(t *testing.T, dir, id string) {
 	t.Helper()
 	b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
@@ -493,9 +518,12 @@ func catalogue(dir string) (items []badInput) {
 		{id: "I14", name: "impute and imputed sets", args: []string{"check"},
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  missing: impute\n  imputed: {files: [d.csv, full.csv]}\n"), code: 1,
 			want: []string{`data.missing: impute makes the imputed sets, while data.imputed names sets made elsewhere; give one or the other`}},
-		{id: "I15", name: "impute with case weights", args: []string{"check"},
-			plan: edit("  file: d.csv\n", "  file: d.csv\n  missing: impute\n  weights: c\n"), code: 1,
-			want: []string{`data.weights: imputation by chained equations (data.missing: impute) does not take case weights; impute elsewhere and name the sets under data.imputed, or remove data.weights`}},
+		{id: "I15", name: "impute with sampling weights", args: []string{"check"},
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  missing: impute\n  weights: c\n  weight_kind: sampling\n"), code: 1,
+			want: []string{`data.weight_kind: imputation by chained equations (data.missing: impute) takes frequency weights (counts of identical units, each imputed on its own), not sampling weights: these are no counts, and imputing under a sampling design needs the design in the imputation models; impute elsewhere and name the sets under data.imputed, or remove data.weights`}},
+		{id: "I17", name: "impute with a frequency weight that is not a whole number", args: []string{"run"}, setup: fractionalWeight,
+			plan: edit("  file: d.csv\n", "  file: fracw.csv\n  missing: impute\n  weights: w\n"), code: 1,
+			want: []string{`data.weights: fracw.csv:3: frequency weight 2.5 is not a whole number; imputation expands each row into as many rows as its weight (the identical units it counts), so the weights must be counts (for sampling weights, impute elsewhere and name the sets under data.imputed) (data.missing: impute, outcome "y")`}},
 		{id: "I16", name: "imputation settings without impute", args: []string{"check"},
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputation: {sets: 5}\n"), code: 1,
 			want: []string{`data.imputation: is used only with data.missing: impute (data.missing is "drop")`}},
