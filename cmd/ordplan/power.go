@@ -92,18 +92,11 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		if !*quiet {
 			qlog = stderr
 		}
-		// One coordinator per replicate: its jobs carry the replicate's
-		// data hash, so replicates never share results.
+		// Each replicate is run as ordplan run --queue runs a plan: its
+		// jobs carry the replicate's data hash, so replicates never share
+		// results.
 		opt.Run = func(q *plan.Plan) (*runner.Result, error) {
-			co := queue.NewCoordinator(ctx, c, q.Hash, qlog)
-			if _, err := co.AddData(q.Data.Path); err != nil {
-				return nil, err
-			}
-			res, err := runner.Run(q, runner.Options{Workers: 1, Executor: co})
-			if err == nil {
-				err = co.Err()
-			}
-			return res, err
+			return runOnQueue(ctx, c, q, runner.Options{Workers: 1}, qlog)
 		}
 	}
 	pr, err := simulate.Power(p, opt)

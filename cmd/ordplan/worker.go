@@ -107,6 +107,15 @@ func runPlan(p *plan.Plan, opt runner.Options, cfg *queue.Config, deadline time.
 	}
 	defer c.Close()
 	c.JobDeadline = deadline
+	return runOnQueue(ctx, c, p, opt, log)
+}
+
+// runOnQueue runs a plan with its grids' fits made by workers: a
+// coordinator of its own (its jobs carry the plan's hash and the data's),
+// the data file or parts registered, and a failure of the queue itself
+// reported rather than the run's result. ordplan run --queue and every
+// replicate of ordplan power --queue go through it.
+func runOnQueue(ctx context.Context, c *queue.Client, p *plan.Plan, opt runner.Options, log io.Writer) (*runner.Result, error) {
 	co := queue.NewCoordinator(ctx, c, p.Hash, log)
 	if p.Data.Parts != nil {
 		if _, err := co.AddParts(p.Data.PartPaths); err != nil {
