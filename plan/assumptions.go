@@ -10,6 +10,7 @@ import (
 	"gonum.org/v1/gonum/mat"
 	"gopkg.in/yaml.v3"
 
+	"ordplan/runner/data"
 	"ordplan/runner/design"
 	"ordplan/runner/fit"
 )
@@ -498,6 +499,9 @@ func (d *decoder) checkEffect(p *Plan, ts design.TermSpec, cols []string, e *Eff
 				d.errAt(childPath(e.Key, lv), "%s is not a level of %s (%s)", quote(lv), t, strings.Join(cat.Levels, ", "))
 			case lv == cat.Reference && e.Named[lv] != 0:
 				d.errAt(childPath(e.Key, lv), "%s is the reference level: its slope is 0", quote(lv))
+			case excludedBy(p, ts.Source, lv) != nil:
+				c := excludedBy(p, ts.Source, lv)
+				d.errAt(childPath(e.Key, lv), "%s is a level the subset leaves out (%s: %s): no row the plan analyses has it, so there is no effect of it to simulate; remove it", quote(lv), c.Key, c.String())
 			default:
 				e.Levels[j] = e.Named[lv]
 			}
@@ -581,6 +585,17 @@ func (d *decoder) checkTransforms(p *Plan) {
 			}
 		}
 	}
+}
+
+// excludedBy gives the subset condition that leaves out the rows where
+// column col holds value v, or nil.
+func excludedBy(p *Plan, col, v string) *data.Condition {
+	for i := range p.Subset {
+		if c := &p.Subset[i]; c.Column == col && !c.Keeps(v) {
+			return c
+		}
+	}
+	return nil
 }
 
 // checkGenerator settles the generating comparison, direction and link.

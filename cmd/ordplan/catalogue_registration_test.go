@@ -127,10 +127,14 @@ func registrationItems() []badInput {
 		{id: "A14", name: "a subset that keeps almost none of the simulated rows", args: []string{"rehearse"}, code: 1,
 			plan: edit("predictors:", "subset:\n  - {column: a, at_least: 5}\npredictors:") + assumed("{a: 0.2}", ""),
 			want: []string{`A14.yaml: subset: the plan's subset (a >= 5) keeps 1 of the 2000000 rows drawn from the assumptions (under 5%): the stated proportions cannot be set on the rows it keeps`}},
-		{id: "A15", name: "an effect for a level the simulated rows lack", args: []string{"rehearse"}, code: 1,
+		{id: "A15", name: "an effect for a level the subset leaves out", args: []string{"check", "--no-data"}, code: 1, lines: true,
 			plan: edit("predictors:", "subset:\n  - {column: b, none_of: [w]}\npredictors:") + "categorical:\n  b: {levels: [u, v, w], unobserved: drop}\n" +
 				strings.Replace(assumed("{b: {v: 0.3, w: 0.5}}", ""), "b: {mean: 0, sd: 1}", "b: {proportions: [0.3, 0.3, 0.4]}", 1),
-			want: []string{`assumptions.outcomes.y.effects.b.w: level "w" of b occurs in no simulated row the subset keeps, so the design drops its column (unobserved: drop) and its effect cannot be simulated`}},
+			want: []string{`assumptions.outcomes.y.effects.b.w: "w" is a level the subset leaves out (subset[0]: b not in {w}): no row the plan analyses has it, so there is no effect of it to simulate; remove it`}},
+		{id: "A17", name: "an effect for a level no simulated row has", args: []string{"rehearse"}, code: 1,
+			plan: edit("predictors:", "seed: 17\npredictors:") + "categorical:\n  b: {levels: [u, v, w], unobserved: drop}\n" +
+				strings.Replace(assumed("{b: {v: 0.3, w: 0.5}}", ""), "b: {mean: 0, sd: 1}", "b: {proportions: [0.499995, 0.499995, 0.00001]}", 1),
+			want: []string{`assumptions.outcomes.y.effects.b.w: level "w" of b occurs in no simulated row, so the design drops its column (unobserved: drop) and its effect cannot be simulated`}},
 		{id: "A16", name: "a log of a column drawn from a normal distribution without a range", args: []string{"check", "--no-data"}, code: 1, lines: true,
 			plan: edit("[a, b]", "[{name: alog, column: a, log: true}, b]") + assumed("{alog: 0.2}", ""),
 			want: []string{`A16.yaml:15:19: assumptions.predictors.a: log(a) of predictors[0] (alog) is undefined for values at or below 0, and a normal distribution (mean 0, sd 1) with no range in the dictionary takes such values: give a a range in the dictionary (dictionary.a.range) with a minimum above 0, or a shift (log: {shift: ...})`}},

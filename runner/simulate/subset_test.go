@@ -83,8 +83,9 @@ func TestSubsetKeepsTooFewRows(t *testing.T) {
 	}
 }
 
-// droppedLevelPlan: the subset leaves out the level "east" of site,
-// which the plan drops when no row has it.
+// droppedLevelPlan: the level "east" of site is so rare (1 in 100000)
+// that the calibration sample of this seed has none, and the plan drops
+// a level no row has.
 const droppedLevelPlan = `version: 1
 seed: 17
 data: {file: sim.csv}
@@ -94,8 +95,6 @@ outcomes:
 categorical:
   site: {levels: [north, south, east], unobserved: drop}
 predictors: [site, x, {interact: [x, site]}]
-subset:
-  - {column: site, none_of: [east]}
 dictionary:
   site: {}
   x: {range: [-3, 3]}
@@ -106,6 +105,7 @@ rules:
 assumptions:
   predictors:
     x: {mean: 0, sd: 1}
+    site: {proportions: [0.499995, 0.499995, 0.00001]}
   outcomes:
     y:
       proportions: [0.3, 0.4, 0.3]
@@ -115,17 +115,18 @@ assumptions:
 `
 
 // TestEffectOfDroppedLevel: an effect stated for a level that the
-// analysed population lacks (so the design drops its column) is refused
-// with the plan key and the level, for a level slope and for an
-// interaction's design column; it is never ignored nor a panic.
+// simulated rows lack (so the design drops its column) is refused with
+// the plan key and the level, for a level slope and for an interaction's
+// design column; it is never ignored nor a panic. (A level the subset
+// leaves out is refused when the plan is checked.)
 func TestEffectOfDroppedLevel(t *testing.T) {
 	_, err := New(parsePlan(t, droppedLevelPlan))
-	if err == nil || !strings.Contains(err.Error(), `assumptions.outcomes.y.effects.site.east: level "east" of site occurs in no simulated row the subset keeps`) {
+	if err == nil || !strings.Contains(err.Error(), `assumptions.outcomes.y.effects.site.east: level "east" of site occurs in no simulated row, so the design drops its column`) {
 		t.Errorf("level slope: %v", err)
 	}
 	src := strings.Replace(droppedLevelPlan, "site: {south: 0.4, east: 0.9}", "site: {south: 0.4}\n        x&site: {x&site.south: 0.2, x&site.east: 0.3}", 1)
 	_, err = New(parsePlan(t, src))
-	if err == nil || !strings.Contains(err.Error(), `assumptions.outcomes.y.effects.x&site.x&site.east: the design column "x&site.east" is not made on the simulated rows the subset keeps: level "east" of site occurs in none of them`) {
+	if err == nil || !strings.Contains(err.Error(), `assumptions.outcomes.y.effects.x&site.x&site.east: the design column "x&site.east" is not made on the simulated rows: level "east" of site occurs in none of them`) {
 		t.Errorf("interaction column: %v", err)
 	}
 	// Without the effects of east the plan simulates.
