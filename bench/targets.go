@@ -239,18 +239,18 @@ func gridCells(K int) []cell {
 // all of them through fit.FitGrid, the path of a plan's grid (the grid's
 // wall and CPU seconds and passes over the data).
 func gridTimes(d *fit.Data, K int) (g gridTiming) {
-	all := gridCells(K)
+	g.cells = gridCells(K)
 	workers := runtime.GOMAXPROCS(0)
-	wall, cpu, passes := fitOneByOne(d, all, workers)
-	for i, s := range wall {
-		g.singlePasses += passes[i]
+	g.wall, g.cpu, g.passes = fitOneByOne(d, g.cells, workers)
+	for i, s := range g.wall {
+		g.singlePasses += g.passes[i]
 		if s > g.slowest {
-			g.slowest, g.slowestCPU, g.name, g.slowestPasses = s, cpu[i], all[i].name, passes[i]
+			g.slowest, g.slowestCPU, g.name, g.slowestPasses = s, g.cpu[i], g.cells[i].name, g.passes[i]
 		}
 	}
 	r0 := fit.RowsEvaluated()
 	c0 := cpuSeconds()
-	g.grid = fitAtOnce(d, all)
+	g.grid = fitAtOnce(d, g.cells)
 	g.gridCPU = cpuSeconds() - c0
 	g.gridPasses = float64(fit.RowsEvaluated()-r0) / float64(d.N())
 	return g
@@ -258,10 +258,28 @@ func gridTimes(d *fit.Data, K int) (g gridTiming) {
 
 // gridTiming is what gridTimes measured.
 type gridTiming struct {
+	cells                              []cell
+	wall, cpu, passes                  []float64 // each model fitted alone
 	slowest, slowestCPU, slowestPasses float64
 	name                               string
 	grid, gridCPU, gridPasses          float64
 	singlePasses                       float64 // the models fitted one by one, summed
+}
+
+// gridReport measures the grid at n rows (-only grid): every model fitted
+// alone on every core, then the grid through fit.FitGrid, with the passes
+// over the data of each, and the grid's ratio to its slowest fit.
+func gridReport(w io.Writer, n int) {
+	const K = 10
+	d := generate(n, K, 5, 42)
+	fmt.Fprintf(w, "Load average when the run began: %s (on %d cores). n = %s, K = %d, J = 5.\n\n", loadAverage(), runtime.NumCPU(), count(n), K)
+	g := gridTimes(d, K)
+	fmt.Fprintf(w, "| model | alone: seconds | CPU seconds | passes over the data |\n|---|---|---|---|\n")
+	for i, c := range g.cells {
+		fmt.Fprintf(w, "| %s | %.2f | %.2f | %.1f |\n", c.name, g.wall[i], g.cpu[i], g.passes[i])
+	}
+	fmt.Fprintf(w, "| the grid (fit.FitGrid, %d at once) | %.2f | %.2f | %.1f (alone, summed: %.1f) |\n\n", runtime.GOMAXPROCS(0), g.grid, g.gridCPU, g.gridPasses, g.singlePasses)
+	fmt.Fprintf(w, "Grid / slowest single fit (%s): %.2f wall, %.2f CPU (limit %g).\n", g.name, g.grid/g.slowest, g.gridCPU/g.slowestCPU, gridLimit)
 }
 
 // memoryResult is what a fit in a fresh process used: the peak resident
