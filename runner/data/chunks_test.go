@@ -3,6 +3,7 @@ package data
 import (
 	"bytes"
 	"fmt"
+	"io"
 	"math"
 	"math/rand/v2"
 	"reflect"
@@ -413,7 +414,7 @@ func BenchmarkReadStream(b *testing.B) {
 
 // benchParquet is benchFile's rows as a flat Parquet file (int64 outcome,
 // double predictors).
-func benchParquet(b *testing.B, n int) []byte {
+func benchParquet(b testing.TB, n int) []byte {
 	d, err := readBytes(benchFile(n), "b.csv", benchOpt)
 	if err != nil {
 		b.Fatal(err)
@@ -480,7 +481,9 @@ func randomParquet(t *testing.T, rng *rand.Rand, rows int, labels, bad bool) []b
 		"s": opt(parquet.String()), "g": opt(parquet.String()),
 	})
 	var buf bytes.Buffer
-	w := parquet.NewWriter(&buf, schema)
+	// Several row groups and small pages, so that units start inside row
+	// groups and pages.
+	w := parquet.NewWriter(&buf, schema, parquet.MaxRowsPerRowGroup(int64(20+rng.IntN(200))), parquet.PageBufferSize(256))
 	for i := 0; i < rows; i++ {
 		var row parquet.Row
 		for ci, path := range schema.Columns() {
@@ -533,9 +536,11 @@ func randomParquet(t *testing.T, rng *rand.Rand, rows int, labels, bad bool) []b
 // A Parquet file read from its values gives what reading the values'
 // texts record by record gives: data, counts and the first error.
 func TestParquetValuesReadLikeTexts(t *testing.T) {
+	oldRows, oldWorkers := unitRows, chunkWorkers
+	defer func() { unitRows, chunkWorkers = oldRows, oldWorkers }()
 	rng := rand.New(rand.NewPCG(23, 5))
 	levels := map[string][]string{"c": {"p", "q", "r"}}
-	for trial := 0; trial < 40; trial++ {
+	for trial := 0; trial < 60; trial++ {
 		labels := trial%2 == 1
 		in := randomParquet(t, rng, 1+rng.IntN(300), labels, trial%3 == 0)
 		opt := Options{Outcome: "y", Predictors: []string{"a", "b"}}
@@ -555,12 +560,86 @@ func TestParquetValuesReadLikeTexts(t *testing.T) {
 			opt.Offset = "s"
 		case 5:
 			opt.Keep = []Condition{{Column: "b", Op: ">", Number: -500}}
-			opt.Dialect.DecimalComma = trial%4 == 1
 		}
+		opt.Dialect.DecimalComma = trial%4 == 1
+		unitRows, chunkWorkers = int64(1+rng.IntN(80)), 1+trial%3
 		want, wantErr := ReadStream(bytes.NewReader(in), "t.parquet", opt)
 		got, err := Read(bytes.NewReader(in), "t.parquet", opt)
 		if msg := sameRead(want, wantErr, got, err); msg != "" {
 			t.Fatalf("trial %d: %s", trial, msg)
+		}
+	}
+}
+
+// Required double columns are read straight as numbers: the same data,
+// counts and first error as the values' texts read record by record, with
+// non-finite values, signed zeros, negative weights and a decimal comma.
+func TestParquetRequiredDoubles(t *testing.T) {
+	oldRows, oldWorkers := unitRows, chunkWorkers
+	defer func() { unitRows, chunkWorkers = oldRows, oldWorkers }()
+	rng := rand.New(rand.NewPCG(31, 7))
+	schema := parquet.NewSchema("rows", parquet.Group{
+		"y": parquet.Leaf(parquet.Int64Type), "a": parquet.Leaf(parquet.DoubleType),
+		"w": parquet.Leaf(parquet.DoubleType), "o": parquet.Leaf(parquet.DoubleType),
+	})
+	for trial := 0; trial < 24; trial++ {
+		var buf bytes.Buffer
+		w := parquet.NewWriter(&buf, schema, parquet.MaxRowsPerRowGroup(int64(10+rng.IntN(100))), parquet.PageBufferSize(128))
+		rows := 1 + rng.IntN(400)
+		for i := 0; i < rows; i++ {
+			x := rng.NormFloat64() * math.Pow(10, float64(rng.IntN(9)-4))
+			if trial%3 == 0 && rng.IntN(rows) == 0 {
+				x = []float64{math.NaN(), math.Inf(1), math.Inf(-1), math.Copysign(0, -1)}[rng.IntN(4)]
+			}
+			wt := float64(rng.IntN(3))
+			if trial%4 == 1 && rng.IntN(rows) == 0 {
+				wt = -1
+			}
+			row := parquet.Row{
+				parquet.DoubleValue(x).Level(0, 0, 0), parquet.DoubleValue(rng.Float64()).Level(0, 0, 1),
+				parquet.DoubleValue(wt).Level(0, 0, 2), parquet.Int64Value(int64(1+rng.IntN(3))).Level(0, 0, 3),
+			}
+			if _, err := w.WriteRows([]parquet.Row{row}); err != nil {
+				t.Fatal(err)
+			}
+		}
+		if err := w.Close(); err != nil {
+			t.Fatal(err)
+		}
+		opt := Options{Outcome: "y", Predictors: []string{"a"}}
+		if trial%2 == 0 {
+			opt.Weights, opt.Offset = "w", "o"
+		}
+		opt.Dialect.DecimalComma = trial%3 == 1
+		unitRows, chunkWorkers = int64(1+rng.IntN(60)), 1+trial%3
+		want, wantErr := ReadStream(bytes.NewReader(buf.Bytes()), "r.parquet", opt)
+		got, err := Read(bytes.NewReader(buf.Bytes()), "r.parquet", opt)
+		if msg := sameRead(want, wantErr, got, err); msg != "" {
+			t.Fatalf("trial %d: %s", trial, msg)
+		}
+		if trial == 2 && (err != nil || got.N == 0) {
+			t.Fatalf("trial 2 reads no rows: %v", err)
+		}
+	}
+}
+
+// A Parquet double has no decimal mark: a plan's decimal comma (meant for
+// the text of CSV files) reads it as the same number.
+func TestParquetDoublesUnderDecimalComma(t *testing.T) {
+	in := benchParquet(t, 500)
+	opt := benchOpt
+	point, err := Read(bytes.NewReader(in), "p.parquet", opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	opt.Dialect.DecimalComma = true
+	for _, read := range []func(io.Reader, string, Options) (*Dataset, error){Read, ReadStream} {
+		comma, err := read(bytes.NewReader(in), "p.parquet", opt)
+		if err != nil {
+			t.Fatalf("decimal comma: %v", err)
+		}
+		if !reflect.DeepEqual(comma.X, point.X) || !reflect.DeepEqual(comma.Y, point.Y) {
+			t.Fatal("decimal comma: other values than with a point")
 		}
 	}
 }

@@ -7,8 +7,10 @@ import (
 	"io"
 	"math"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
+	"sync/atomic"
 
 	"github.com/parquet-go/parquet-go"
 )
@@ -23,6 +25,8 @@ func IsParquet(name string) bool {
 // cell (missing), numbers are written back exactly (shortest round-trip).
 // Rows are read a batch at a time, as they are used.
 type columnRecords struct {
+	file   *parquet.File
+	mark   byte // the dialect's decimal mark, for the texts of numbers
 	header []string
 	rows   int64 // rows in the file, as its metadata says
 	size   int64 // bytes of the file
@@ -56,6 +60,7 @@ func openParquet(raw []byte) (rec *columnRecords, msg string) {
 		}
 		rec.header = append(rec.header, path[0])
 	}
+	rec.file, rec.mark = f, '.'
 	rec.rd = parquet.NewReader(f)
 	rec.rows, rec.size = f.NumRows(), int64(len(raw))
 	rec.batch = make([]parquet.Row, 0, 1024)
@@ -123,13 +128,18 @@ func (c *columnRecords) cells(row parquet.Row) ([]string, error) {
 		if v.Column() != len(cells) {
 			return nil, &Error{Line: c.next + 1, Msg: "row has a repeated or nested value; only flat Parquet files are read"}
 		}
-		cells = append(cells, cellText(v))
+		cells = append(cells, cellText(v, c.mark))
 	}
 	return cells, nil
 }
 
-// cellText writes a value as the CSV reader would see it.
-func cellText(v parquet.Value) string {
+// cellText writes a value as the CSV reader would see it, numbers with
+// the dialect's decimal mark (a Parquet number has none of its own: the
+// dialect's mark must not make it unreadable). A float (32 bits) is
+// widened exactly to a float64 and written as that float64 (0.1 stored as
+// a float reads as 0.10000000149011612, the value the file holds), so that
+// its text reads back as the number valueRow takes.
+func cellText(v parquet.Value, mark byte) string {
 	if v.IsNull() {
 		return ""
 	}
@@ -144,19 +154,23 @@ func cellText(v parquet.Value) string {
 	case parquet.Int64:
 		return strconv.FormatInt(v.Int64(), 10)
 	case parquet.Float:
-		return fmtNum(float64(v.Float()), 32)
+		return fmtNum(float64(v.Float()), mark)
 	case parquet.Double:
-		return fmtNum(v.Double(), 64)
+		return fmtNum(v.Double(), mark)
 	default:
 		return string(v.ByteArray())
 	}
 }
 
-func fmtNum(x float64, bits int) string {
+func fmtNum(x float64, mark byte) string {
 	if math.IsNaN(x) {
 		return "NaN"
 	}
-	return strconv.FormatFloat(x, 'g', -1, bits)
+	s := strconv.FormatFloat(x, 'g', -1, 64)
+	if mark != '.' {
+		s = strings.Replace(s, ".", string(mark), 1)
+	}
+	return s
 }
 
 // FieldPos gives the row number counting the header as line 1, as in CSV.
@@ -167,6 +181,9 @@ func (c *columnRecords) FieldPos(int) (int, int) { return c.next + 1, 0 }
 // taken from the values, any other through the cell texts and the same
 // record path as CSV.
 func (r *reader) columnRows(c *columnRecords) (*Dataset, error) {
+	if d, done, err := r.parallelRows(c); done {
+		return d, err
+	}
 	d := r.newDataset()
 	t := r.newRowTally(d.K)
 	// The arrays for the rows the metadata announces, unless that would
@@ -182,9 +199,6 @@ func (r *reader) columnRows(c *columnRecords) (*Dataset, error) {
 		}
 	}
 	fast := r.newFastPlan(t)
-	if r.opt.Dialect.DecimalComma {
-		fast = nil // the texts of numbers have a point, which the general way refuses
-	}
 	for {
 		row, err := c.row()
 		if err == io.EOF {
@@ -221,67 +235,75 @@ func (r *reader) valueRow(p *fastPlan, t *rowTally, row parquet.Row) (cells, boo
 	}
 	for fi := range p.fields {
 		f := &p.fields[fi]
-		v := row[fi]
 		if f.kind == fastSkip {
 			continue
 		}
-		if v.Column() != fi || v.IsNull() {
-			return out, false
-		}
-		var ok bool
-		switch f.kind {
-		case fastNumber, fastWeight, fastOffset:
-			var x float64
-			if x, ok = plainNumber(v); !ok || f.check {
-				return out, false
-			}
-			switch f.kind {
-			case fastNumber:
-				t.xs[f.pos] = x
-			case fastWeight:
-				out.w, ok = x, x >= 0
-			default:
-				out.off = x
-			}
-		case fastCode:
-			switch v.Kind() {
-			case parquet.Int32:
-				out.code, ok = int64(v.Int32()), !f.check
-			case parquet.Int64:
-				out.code, ok = v.Int64(), !f.check
-			}
-		case fastLabel, fastLevel:
-			var l int
-			if v.Kind() == parquet.ByteArray && !f.check {
-				if b := v.ByteArray(); len(b) > 0 && b[0] > ' ' && b[0] < 0x80 && b[len(b)-1] > ' ' && b[len(b)-1] < 0x80 {
-					l, ok = f.levels[string(b)] // no white space to trim
-				}
-			}
-			if f.kind == fastLabel {
-				out.y = l
-			} else {
-				t.xs[f.pos] = float64(l)
-			}
-		case fastCluster:
-			cell := strings.TrimSpace(cellText(v))
-			out.cl, ok = cell, !r.missingIn(f.name, cell)
-		}
-		if !ok {
+		if row[fi].Column() != fi || !r.valueCell(p, f, &row[fi], &out, t.xs) {
 			return out, false
 		}
 	}
 	return out, true
 }
 
+// valueCell reads one used value of a row the fast way into the row (and
+// its predictor values xs); false when the row needs the general way.
+func (r *reader) valueCell(p *fastPlan, f *fastField, v *parquet.Value, out *cells, xs []float64) bool {
+	if v.IsNull() {
+		return false
+	}
+	var ok bool
+	switch f.kind {
+	case fastNumber, fastWeight, fastOffset:
+		var x float64
+		if x, ok = plainNumber(v); !ok || f.check {
+			return false
+		}
+		switch f.kind {
+		case fastNumber:
+			xs[f.pos] = x
+		case fastWeight:
+			out.w, ok = x, x >= 0
+		default:
+			out.off = x
+		}
+	case fastCode:
+		switch v.Kind() {
+		case parquet.Int32:
+			out.code, ok = int64(v.Int32()), !f.check
+		case parquet.Int64:
+			out.code, ok = v.Int64(), !f.check
+		}
+	case fastLabel, fastLevel:
+		var l int
+		if v.Kind() == parquet.ByteArray && !f.check {
+			if b := v.ByteArray(); len(b) > 0 && b[0] > ' ' && b[0] < 0x80 && b[len(b)-1] > ' ' && b[len(b)-1] < 0x80 {
+				l, ok = f.levels[string(b)] // no white space to trim
+			}
+		}
+		if f.kind == fastLabel {
+			out.y = l
+		} else {
+			xs[f.pos] = float64(l)
+		}
+	case fastCluster:
+		cell := strings.TrimSpace(cellText(*v, p.mark))
+		out.cl, ok = cell, !r.missingIn(f.name, cell)
+	}
+	return ok
+}
+
 // plainNumber is a value's number when its text (cellText) reads as that
-// number: a finite double (written back exactly), an integer (the text of
-// an int64 reads as the nearest float64, as the conversion rounds it) or a
-// boolean (0 or 1). Floats are left to their text, which reads as a
-// float64 other than the float32's.
-func plainNumber(v parquet.Value) (float64, bool) {
+// number: a finite double (written back exactly), a finite float widened
+// exactly to a float64 (written back as that float64), an integer (the
+// text of an int64 reads as the nearest float64, as the conversion rounds
+// it) or a boolean (0 or 1).
+func plainNumber(v *parquet.Value) (float64, bool) {
 	switch v.Kind() {
 	case parquet.Double:
 		x := v.Double()
+		return x, !math.IsNaN(x) && !math.IsInf(x, 0)
+	case parquet.Float:
+		x := float64(v.Float())
 		return x, !math.IsNaN(x) && !math.IsInf(x, 0)
 	case parquet.Int32:
 		return float64(v.Int32()), true
@@ -294,4 +316,282 @@ func plainNumber(v parquet.Value) (float64, bool) {
 		return 0, true
 	}
 	return 0, false
+}
+
+// Reading a Parquet file in parallel: the rows are cut into units (a row
+// group, or a range of about unitRows of its rows when its column chunks
+// have an offset index to seek with), each read by whichever worker takes
+// it, column by column (only the used columns are decoded), into its own
+// region of the arrays, then joined in file order, as CSV chunks are
+// (chunks.go): the data, the counts and the first error do not depend on
+// the units or the workers.
+
+// unitRows is the size of a unit's row range (tests make it small).
+var unitRows int64 = 1 << 16
+
+// columnUnit is a range of rows of one row group.
+type columnUnit struct {
+	rg     parquet.RowGroup
+	lo, hi int64 // rows of the row group
+	first  int   // the file's row index of lo
+}
+
+// units cuts the file's rows into units; false when the file must be read
+// row by row (a repeated column, or row counts that do not add up).
+func (c *columnRecords) units(used []int) ([]columnUnit, bool) {
+	for _, path := range c.file.Schema().Columns() {
+		if leaf, ok := c.file.Schema().Lookup(path...); !ok || leaf.MaxRepetitionLevel > 0 {
+			return nil, false
+		}
+	}
+	var out []columnUnit
+	first := int64(0)
+	for _, rg := range c.file.RowGroups() {
+		n := rg.NumRows()
+		step := n
+		chunks := rg.ColumnChunks()
+		if n > unitRows {
+			step = unitRows
+			for _, ci := range used {
+				if ci >= len(chunks) {
+					return nil, false
+				}
+				if _, err := chunks[ci].OffsetIndex(); err != nil {
+					step = n // no page locations: seeking would decode every page before
+				}
+			}
+		}
+		for lo := int64(0); lo < n; lo += step {
+			out = append(out, columnUnit{rg: rg, lo: lo, hi: min(lo+step, n), first: int(first + lo)})
+		}
+		first += n
+	}
+	if first != c.rows {
+		return nil, false
+	}
+	return out, true
+}
+
+// unitCursor gives the line of the row being read (records interface, for
+// FieldPos): rows count from line 2, the header being line 1.
+type unitCursor struct{ line int }
+
+func (u *unitCursor) Read() ([]string, error) { return nil, io.EOF }
+func (u *unitCursor) FieldPos(int) (int, int) { return u.line, 0 }
+func (c *columnRecords) usedColumns(r *reader) []int {
+	var used []int
+	for _, col := range r.cols {
+		if !slices.Contains(used, col.index) {
+			used = append(used, col.index)
+		}
+	}
+	slices.Sort(used)
+	return used
+}
+
+// parallelRows reads the rows of a flat Parquet file in units on the
+// workers; done is false when the file must be read row by row.
+func (r *reader) parallelRows(c *columnRecords) (d *Dataset, done bool, err error) {
+	used := c.usedColumns(r)
+	units, ok := c.units(used)
+	K := len(r.opt.Predictors)
+	// The arrays for the rows the metadata announces, unless that would
+	// take more than 64 bytes per byte of the file (a damaged count).
+	if !ok || len(units) == 0 || c.rows > 8*c.size/int64(K+3) {
+		return nil, false, nil
+	}
+	out := r.newDataset()
+	t := r.newRowTally(out.K)
+	a := r.newArrays(int(c.rows), out.K)
+	chunks := make([]chunk, len(units))
+	for i, u := range units {
+		n := int(u.hi - u.lo)
+		chunks[i].row0 = u.first
+		chunks[i].d, chunks[i].t = a.region(u.first, n), t.fork()
+		chunks[i].t.codes = a.codes[u.first:u.first:(u.first + n)]
+	}
+	fast := r.newFastPlan(t)
+	var firstErr atomic.Int64
+	firstErr.Store(int64(len(units)))
+	forEach(len(units), func(i int) {
+		if int64(i) > firstErr.Load() {
+			return
+		}
+		if chunks[i].err = r.readUnit(c, units[i], used, &chunks[i], fast); chunks[i].err != nil {
+			for {
+				f := firstErr.Load()
+				if int64(i) >= f || firstErr.CompareAndSwap(f, int64(i)) {
+					break
+				}
+			}
+		}
+	})
+	if f := int(firstErr.Load()); f < len(units) {
+		return nil, true, chunks[f].err
+	}
+	a.join(out, t, chunks)
+	d, err = r.finish(t, out)
+	return d, true, err
+}
+
+// columnValues reads the values of one column chunk from a row on, page
+// after page.
+type columnValues struct {
+	pages   parquet.Pages
+	vr      parquet.ValueReader
+	doubles []float64 // a required double column read as numbers: the batch's values (else nil)
+}
+
+// fill reads the next n values through take, which reads values [from,
+// to) of the batch from a page's reader; a chunk that ends early is an
+// *Error.
+func (cv *columnValues) fill(n int, take func(vr parquet.ValueReader, from, to int) (int, error)) error {
+	for at := 0; at < n; {
+		if cv.vr == nil {
+			p, err := cv.pages.ReadPage()
+			if err != nil {
+				if errors.Is(err, io.EOF) {
+					return &Error{Msg: "is not a readable Parquet file (a column has fewer values than the rows its row group announces)"}
+				}
+				return &Error{Msg: "is not a readable Parquet file (" + err.Error() + ")"}
+			}
+			cv.vr = p.Values()
+		}
+		k, err := take(cv.vr, at, n)
+		at += k
+		switch {
+		case errors.Is(err, io.EOF):
+			cv.vr = nil
+		case err != nil:
+			return &Error{Msg: "is not a readable Parquet file (" + err.Error() + ")"}
+		}
+	}
+	return nil
+}
+
+// read fills buf with the next values: as numbers into cv.doubles for a
+// required double column (straight from the page when its reader gives
+// numbers; buf is then scratch), else as values into buf.
+func (cv *columnValues) read(buf []parquet.Value) error {
+	if cv.doubles == nil {
+		return cv.fill(len(buf), func(vr parquet.ValueReader, from, to int) (int, error) {
+			return vr.ReadValues(buf[from:to])
+		})
+	}
+	return cv.fill(len(buf), func(vr parquet.ValueReader, from, to int) (int, error) {
+		if dr, ok := vr.(parquet.DoubleReader); ok {
+			return dr.ReadDoubles(cv.doubles[from:to])
+		}
+		k, err := vr.ReadValues(buf[from:to])
+		for i := from; i < from+k; i++ {
+			cv.doubles[i] = buf[i].Double()
+		}
+		return k, err
+	})
+}
+
+// requiredDouble reports whether column ci of the file is a required
+// (never null) double.
+func (c *columnRecords) requiredDouble(ci int) bool {
+	leaf, ok := c.file.Schema().Lookup(c.file.Schema().Columns()[ci]...)
+	return ok && leaf.MaxDefinitionLevel == 0 && leaf.MaxRepetitionLevel == 0 && leaf.Node.Type().Kind() == parquet.Double
+}
+
+// readUnit reads the rows of a unit into its chunk's region and tally: a
+// row whose used values are plain the fast way (valueRow), any other
+// through the texts of its used cells and the same record path as CSV.
+func (r *reader) readUnit(c *columnRecords, u columnUnit, used []int, ch *chunk, fast *fastPlan) (err error) {
+	defer func() {
+		if p := recover(); p != nil {
+			err = &Error{Msg: fmt.Sprintf("is not a readable Parquet file (%v)", p)}
+		}
+		if err != nil {
+			err = r.csvErr(err, nil)
+		}
+	}()
+	const batch = 1024
+	chunks := u.rg.ColumnChunks()
+	cols := make([]columnValues, len(used))
+	vals := make([][]parquet.Value, len(used))
+	for k, ci := range used {
+		cols[k].pages = chunks[ci].Pages()
+		defer cols[k].pages.Close()
+		if err := cols[k].pages.SeekToRow(u.lo); err != nil {
+			return &Error{Msg: "is not a readable Parquet file (" + err.Error() + ")"}
+		}
+		vals[k] = make([]parquet.Value, batch)
+		if fast != nil && c.requiredDouble(ci) {
+			if f := fast.fields[ci]; !f.check && (f.kind == fastNumber || f.kind == fastWeight || f.kind == fastOffset) {
+				cols[k].doubles = make([]float64, batch)
+			}
+		}
+	}
+	cur := &unitCursor{}
+	cr := *r
+	cr.cr = cur
+	K := len(ch.t.xs)
+	rows := make([]cells, batch)
+	xb := make([]float64, batch*K)
+	slow := make([]bool, batch)
+	rec := make([]string, r.width)
+	for at := u.lo; at < u.hi; {
+		b := int(min(batch, u.hi-at))
+		for k := range cols {
+			if err := cols[k].read(vals[k][:b]); err != nil {
+				return err
+			}
+		}
+		// Column by column, the fast way while it can.
+		for j := 0; j < b; j++ {
+			rows[j], slow[j] = cells{miss: -1, w: 1}, fast == nil
+		}
+		if fast != nil {
+			for k, ci := range used {
+				f := &fast.fields[ci]
+				if xk := cols[k].doubles; xk != nil {
+					for j, x := range xk[:b] {
+						switch {
+						case math.IsNaN(x) || math.IsInf(x, 0):
+							slow[j] = true
+						case f.kind == fastNumber:
+							xb[j*K+f.pos] = x
+						case f.kind == fastWeight:
+							rows[j].w = x
+							slow[j] = slow[j] || x < 0
+						default:
+							rows[j].off = x
+						}
+					}
+					continue
+				}
+				vk := vals[k][:b]
+				for j := range vk {
+					if !slow[j] && !cr.valueCell(fast, f, &vk[j], &rows[j], xb[j*K:(j+1)*K]) {
+						slow[j] = true
+					}
+				}
+			}
+		}
+		for j := 0; j < b; j++ {
+			ch.d.RowsRead++
+			cur.line = u.first + int(at-u.lo) + j + 2
+			if !slow[j] {
+				copy(ch.t.xs, xb[j*K:(j+1)*K])
+				cr.settle(ch.t, ch.d, rows[j])
+				continue
+			}
+			for k, ci := range used {
+				if xk := cols[k].doubles; xk != nil {
+					rec[ci] = fmtNum(xk[j], c.mark) // cellText of the double
+				} else {
+					rec[ci] = cellText(vals[k][j], c.mark)
+				}
+			}
+			if err := cr.record(ch.t, ch.d, rec); err != nil {
+				return err
+			}
+		}
+		at += int64(b)
+	}
+	return nil
 }

@@ -256,6 +256,9 @@ func (r *reader) start(in io.Reader) error {
 		if msg != "" {
 			return &Error{File: r.file, Msg: msg}
 		}
+		if r.opt.Dialect.DecimalComma {
+			cr.mark = ','
+		}
 		r.cr = cr
 		return nil
 	}
