@@ -40,8 +40,10 @@ type WatchedExecutor interface {
 }
 
 // DataHolder is an Executor that also takes data made or named during the
-// run (the imputed sets), so that its jobs can name them: it keeps b
-// under its hash, returned, and name (for messages and the format).
+// run (the imputed sets), so that its jobs can name them: it stores b
+// where its jobs read data (the queue's data store) under its hash, which
+// it returns; name is for messages and the format. b may be dropped after
+// the call, so the sets need not all be in memory at once.
 type DataHolder interface {
 	HoldData(name string, b []byte) (string, error)
 }

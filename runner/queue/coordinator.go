@@ -23,7 +23,7 @@ type Coordinator struct {
 	planHash string
 	log      io.Writer
 	files    map[string]string   // data hash -> local path
-	held     map[string][]byte   // data hash -> bytes handed over by the run (HoldData)
+	held     map[string]bool     // data hashes handed over by the run and uploaded (HoldData)
 	parts    map[string][]string // hash of data held as parts -> the parts' paths
 	mu       sync.Mutex
 	err      error
@@ -39,7 +39,7 @@ func NewCoordinator(ctx context.Context, c *Client, planHash string, log io.Writ
 	if c.Log == nil {
 		c.Log = log
 	}
-	return &Coordinator{ctx: ctx, c: c, planHash: planHash, log: log, files: map[string]string{}, held: map[string][]byte{}, parts: map[string][]string{}}
+	return &Coordinator{ctx: ctx, c: c, planHash: planHash, log: log, files: map[string]string{}, held: map[string]bool{}, parts: map[string][]string{}}
 }
 
 // AddData registers a local data file so that jobs on it can upload it to
@@ -53,14 +53,17 @@ func (co *Coordinator) AddData(path string) (string, error) {
 	return h, nil
 }
 
-// HoldData keeps data made or named during the run (the imputed sets of
-// a plan) so that jobs on them can upload them to the data store; it
-// returns the bytes' hash. It implements runner.DataHolder.
+// HoldData uploads data made or named during the run (the imputed sets of
+// a plan) to the data store, so that jobs can name them by the hash it
+// returns; the coordinator keeps no copy. It implements runner.DataHolder.
 func (co *Coordinator) HoldData(name string, b []byte) (string, error) {
 	h := hashBytes(b)
+	if err := co.c.putBytes(co.ctx, b, h, name); err != nil {
+		return "", fmt.Errorf("queue: %v", err)
+	}
 	co.mu.Lock()
 	defer co.mu.Unlock()
-	co.held[h] = b
+	co.held[h] = true
 	return h, nil
 }
 
@@ -134,15 +137,12 @@ func (co *Coordinator) ExecuteWatched(jobs []runner.Job, finished func(k int)) (
 }
 
 // upload puts the data file of job j into the data store: a registered
-// file, or bytes the run handed over.
+// file (data handed over by HoldData is there already).
 func (co *Coordinator) upload(j runner.Job) error {
 	co.mu.Lock()
-	b, held := co.held[j.DataHash]
+	held := co.held[j.DataHash]
 	co.mu.Unlock()
 	if held {
-		if err := co.c.putBytes(co.ctx, b, j.DataHash, j.DataFile); err != nil {
-			return fmt.Errorf("queue: %v", err)
-		}
 		return nil
 	}
 	path, ok := co.files[j.DataHash]
