@@ -49,8 +49,8 @@ func (d *Data) at(i, k int) float64 {
 	return 0
 }
 
-// columns fills u (len(Predictors) columns of rows rows, column-major) with
-// the predictors of rows lo..lo+rows-1.
+// columns fills u (the columns X holds, of rows rows, column-major) with
+// the rows lo..lo+rows-1 of X.
 func (d *Data) columns(lo, rows int, u []float64) {
 	w := d.width()
 	x := d.X[lo*w : (lo+rows)*w]
@@ -58,18 +58,6 @@ func (d *Data) columns(lo, rows int, u []float64) {
 		dst := u[k*rows : (k+1)*rows]
 		for i := range dst {
 			dst[i] = x[i*w+k]
-		}
-	}
-	if d.ind == nil {
-		return
-	}
-	for g := 1; g <= d.ind.count; g++ {
-		dst := u[(w+g-1)*rows : (w+g)*rows]
-		for i, gi := range d.ind.group[lo : lo+rows] {
-			dst[i] = 0
-			if gi == g {
-				dst[i] = 1
-			}
 		}
 	}
 }

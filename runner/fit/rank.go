@@ -34,7 +34,7 @@ func (d *Data) checkRank(workers int) ([]float64, error) {
 	// [minScale, maxScale] the unit-diagonal scaling of the engine gives
 	// the same fit in any units (tested at 1e-100 and 1e100); outside, the
 	// predictor is refused with the factor that brings it back.
-	cs := d.columnSums(workers, nil)
+	cs := d.columnSums(workers, nil, 0)
 	for k := 0; k < K; k++ {
 		switch maxAbs := cs.maxAbs[k]; {
 		case maxAbs > maxScale:
@@ -49,7 +49,7 @@ func (d *Data) checkRank(workers int) ([]float64, error) {
 	for k := range mean {
 		mean[k] = cs.sum[k] / cs.tot
 	}
-	tot, C := cs.tot, d.columnSums(workers, mean).cross
+	tot, C := cs.tot, d.columnSums(workers, mean, cs.tot).cross
 	sd := make([]float64, K)
 	for k := 0; k < K; k++ {
 		sd[k] = math.Sqrt(C[k*K+k] / tot)
@@ -118,15 +118,23 @@ type colSums struct {
 	maxAbs []float64 // K: largest absolute value (every row)
 	at     []int     // K: the first row with it
 	cross  []float64 // K x K: weighted cross-products of the centred columns
+	// With indicator columns (Data.ind): per group, the weighted sums of
+	// X's centred columns over the group's rows (groups x width), and over
+	// every row (width).
+	grp, all []float64
 }
 
 // columnSums forms, without mean, the weights' total, the weighted sums
-// and the largest absolute values of the predictors; with the means, the
-// weighted cross-products of the predictors less their means. The rows
-// are taken a block at a time, column-major (Data.columns), in sumStripes
-// runs summed in order.
-func (d *Data) columnSums(workers int, mean []float64) *colSums {
-	n, K := d.N(), len(d.Predictors)
+// and the largest absolute values of the predictors; with the means (and
+// tot, the weights' total), the weighted cross-products of the predictors
+// less their means. The rows
+// are taken a block at a time, column-major, in sumStripes runs summed in
+// order. Indicator columns (Data.ind) are not written out: their sums are
+// the weights of their groups, and their centred cross-products follow
+// from each group's sums of the other columns (indicatorCross).
+func (d *Data) columnSums(workers int, mean []float64, tot float64) *colSums {
+	n, K, w0 := d.N(), len(d.Predictors), d.width()
+	G := K - w0
 	nb := (n + blockRows - 1) / blockRows
 	per := (nb + sumStripes - 1) / sumStripes
 	stripes := (nb + per - 1) / per
@@ -138,16 +146,17 @@ func (d *Data) columnSums(workers int, mean []float64) *colSums {
 			c.sum, c.maxAbs, c.at = make([]float64, K), make([]float64, K), make([]int, K)
 		} else {
 			c.cross = make([]float64, K*K)
+			c.grp, c.all = make([]float64, G*w0), make([]float64, w0)
 		}
 		u, _ := bufs.Get().([]float64)
 		if u == nil {
-			u = make([]float64, blockRows*K)
+			u = make([]float64, blockRows*w0)
 		}
 		defer bufs.Put(u)
 		for b := st * per; b < min(nb, (st+1)*per); b++ {
 			lo := b * blockRows
 			rows := min(lo+blockRows, n) - lo
-			cols := u[:rows*K]
+			cols := u[:rows*w0]
 			d.columns(lo, rows, cols)
 			var w []float64
 			if d.Weights != nil {
@@ -155,15 +164,21 @@ func (d *Data) columnSums(workers int, mean []float64) *colSums {
 			}
 			if mean == nil {
 				c.addSums(cols, rows, lo, w)
+				if G > 0 {
+					c.addGroups(d.ind.group[lo:lo+rows], lo, w, w0)
+				}
 				continue
 			}
-			for k := 0; k < K; k++ {
+			for k := 0; k < w0; k++ {
 				v := cols[k*rows : (k+1)*rows]
 				for i := range v {
 					v[i] -= mean[k]
 				}
 			}
-			symCross(c.cross, K, cols, K, rows, w)
+			symCross(c.cross, K, cols, w0, rows, w)
+			if G > 0 {
+				c.addGroupCross(d.ind.group[lo:lo+rows], cols, rows, w, w0)
+			}
 		}
 		parts[st] = c
 	})
@@ -172,6 +187,8 @@ func (d *Data) columnSums(workers int, mean []float64) *colSums {
 		total.tot += c.tot
 		addTo(total.sum, c.sum)
 		addTo(total.cross, c.cross)
+		addTo(total.grp, c.grp)
+		addTo(total.all, c.all)
 		for k := range total.maxAbs {
 			if c.maxAbs[k] > total.maxAbs[k] {
 				total.maxAbs[k], total.at[k] = c.maxAbs[k], c.at[k]
@@ -179,13 +196,78 @@ func (d *Data) columnSums(workers int, mean []float64) *colSums {
 		}
 	}
 	if mean != nil {
+		if G > 0 {
+			total.indicatorCross(mean, tot, w0, G)
+		}
 		mirrorLower(total.cross, K)
 	}
 	return total
 }
 
-// addSums adds a block's rows (first row lo; columns cols, column-major)
-// to the weights' total, the weighted sums and the largest values.
+// addGroups adds a block's indicator columns (each row's group; first row
+// lo) to the weighted sums and the largest values: 1 in the rows of the
+// group.
+func (c *colSums) addGroups(group []int, lo int, w []float64, w0 int) {
+	for i, g := range group {
+		if g == 0 {
+			continue
+		}
+		k := w0 + g - 1
+		if c.maxAbs[k] < 1 {
+			c.maxAbs[k], c.at[k] = 1, lo+i
+		}
+		if w == nil {
+			c.sum[k]++
+		} else {
+			c.sum[k] += w[i]
+		}
+	}
+}
+
+// addGroupCross adds a block's weighted centred columns of X (cols,
+// column-major) to the sums of each row's group and of every row.
+func (c *colSums) addGroupCross(group []int, cols []float64, rows int, w []float64, w0 int) {
+	for b := 0; b < w0; b++ {
+		v := cols[b*rows : (b+1)*rows]
+		s := 0.0
+		for i, x := range v {
+			if w != nil {
+				x *= w[i]
+			}
+			s += x
+			if g := group[i]; g > 0 {
+				c.grp[(g-1)*w0+b] += x
+			}
+		}
+		c.all[b] += s
+	}
+}
+
+// indicatorCross fills the lower-triangle rows of the indicator columns in
+// cross: with I_g the indicator of group g, its mean m_g = W_g / W (W_g the
+// group's weight, W every row's), sum w (I_g - m_g)(x - m) is the group's
+// sum of w (x - m) less m_g times every row's, and
+// sum w (I_g - m_g)(I_h - m_h) = W (m_g [g = h] - m_g m_h).
+func (c *colSums) indicatorCross(mean []float64, W float64, w0, G int) {
+	K := w0 + G
+	for g := 0; g < G; g++ {
+		r := c.cross[(w0+g)*K:]
+		mg := mean[w0+g]
+		for b := 0; b < w0; b++ {
+			r[b] = c.grp[g*w0+b] - mg*c.all[b]
+		}
+		for h := 0; h <= g; h++ {
+			r[w0+h] = -W * mg * mean[w0+h]
+			if h == g {
+				r[w0+h] += W * mg
+			}
+		}
+	}
+}
+
+// addSums adds a block's rows (first row lo; the columns of X, cols,
+// column-major) to the weights' total, the weighted sums and the largest
+// values.
 func (c *colSums) addSums(cols []float64, rows, lo int, w []float64) {
 	for i := 0; i < rows; i++ {
 		if w == nil {
@@ -194,7 +276,7 @@ func (c *colSums) addSums(cols []float64, rows, lo int, w []float64) {
 			c.tot += w[i]
 		}
 	}
-	for k := range c.sum {
+	for k := 0; k < len(cols)/max(rows, 1); k++ {
 		v := cols[k*rows : (k+1)*rows]
 		s := 0.0
 		for i, x := range v {

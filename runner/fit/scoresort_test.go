@@ -52,7 +52,10 @@ func TestSortByScoreStable(t *testing.T) {
 // on weighted cells (housing, Madsen 1976) and on those cells expanded to
 // one row per person, which the engine merges back (compressed); with
 // parallel indicators (summed by group) and a nonparallel one (held as a
-// column of the blocks); through the subsample stage of large fits.
+// column of the blocks); through the subsample stage of large fits. The
+// rank check of held indicators (summed by group) gives the columns' SDs
+// to rounding, and the same refusal of an indicator that repeats a
+// predictor.
 func TestIndicatorsAsGroups(t *testing.T) {
 	// Fits of 1000 rows or more take the subsample stage (gsswarm).
 	old := subsampleAbove
@@ -104,6 +107,18 @@ func TestIndicatorsAsGroups(t *testing.T) {
 				dense.X[i*(K+G-1)+K+group[i]-1] = 1
 			}
 		}
+		// The rank check sums the held indicators by group: the same
+		// standard deviations as the columns written out, to rounding.
+		sdHeld, errH := held.checkRank(0)
+		sdDense, errD := dense.checkRank(0)
+		if errH != nil || errD != nil {
+			t.Fatalf("%s: rank check %v, %v", c.name, errH, errD)
+		}
+		for k := range sdDense {
+			if math.Abs(sdHeld[k]-sdDense[k]) > 1e-12*sdDense[k] {
+				t.Errorf("%s: SD of %s %.17g held, %.17g written out", c.name, names[k], sdHeld[k], sdDense[k])
+			}
+		}
 		for _, k := range []int{-1, 0, K} { // all parallel; a predictor or an indicator nonparallel
 			m := Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(K+G-1, Parallel)}
 			if k >= 0 {
@@ -126,8 +141,17 @@ func TestIndicatorsAsGroups(t *testing.T) {
 			}
 		}
 		one := &Data{Y: d.Y, J: d.J, X: d.X, Weights: d.Weights, Predictors: append(append([]string(nil), c.preds...), "g1"), ind: &indicators{group: group, count: 1}}
-		if _, err := Fit(one, Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(K+1, Parallel)}, Options{}); err == nil || !strings.Contains(err.Error(), "collinear") {
+		_, err := Fit(one, Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(K+1, Parallel)}, Options{})
+		if err == nil || !strings.Contains(err.Error(), "collinear") {
 			t.Errorf("%s: indicator equal to %s: got %v", c.name, c.preds[1], err)
+		}
+		oneDense := &Data{Y: d.Y, J: d.J, Weights: d.Weights, Predictors: one.Predictors, X: make([]float64, n*(K+1))}
+		for i := 0; i < n; i++ {
+			copy(oneDense.X[i*(K+1):], d.X[i*K:(i+1)*K])
+			oneDense.X[i*(K+1)+K] = float64(group[i])
+		}
+		if _, errD := Fit(oneDense, Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(K+1, Parallel)}, Options{}); err == nil || errD == nil || err.Error() != errD.Error() {
+			t.Errorf("%s: held %v, written out %v", c.name, err, errD)
 		}
 	}
 }
