@@ -1,13 +1,9 @@
 package main
 
 import (
-	"context"
 	"errors"
 	"fmt"
 	"io"
-	"os"
-	"os/signal"
-	"syscall"
 
 	"ordplan/render"
 	"ordplan/runner"
@@ -45,14 +41,11 @@ func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, std
 	if err != nil {
 		return fail(stderr, err)
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
-	defer stop()
-	c, err := queue.Connect(ctx, cfg)
+	ctx, c, done, err := connectQueue(cfg, *qf.deadline)
 	if err != nil {
 		return fail(stderr, err)
 	}
-	defer c.Close()
-	c.JobDeadline = *qf.deadline
+	defer done()
 	res, err := queue.FitPartitioned(ctx, c, refs, whole, m, queue.PartitionOptions{Data: dopt})
 	if err != nil {
 		return fail(stderr, err)

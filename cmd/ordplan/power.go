@@ -1,15 +1,11 @@
 package main
 
 import (
-	"context"
 	"fmt"
 	"io"
-	"os"
-	"os/signal"
 	"path/filepath"
 	"strconv"
 	"strings"
-	"syscall"
 
 	"ordplan/plan"
 	"ordplan/render"
@@ -80,14 +76,11 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		opt.Progress = stderrProgress(stderr)
 	}
 	if qcfg != nil {
-		ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
-		defer stop()
-		c, err := queue.Connect(ctx, *qcfg)
+		ctx, c, done, err := connectQueue(*qcfg, *qf.deadline)
 		if err != nil {
 			return fail(stderr, err)
 		}
-		defer c.Close()
-		c.JobDeadline = *qf.deadline
+		defer done()
 		var qlog io.Writer
 		if !*quiet {
 			qlog = stderr

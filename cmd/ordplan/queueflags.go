@@ -1,10 +1,13 @@
 package main
 
 import (
+	"context"
 	"errors"
 	"flag"
 	"fmt"
 	"os"
+	"os/signal"
+	"syscall"
 	"time"
 
 	"ordplan/runner/queue"
@@ -61,4 +64,19 @@ func usageOrFail(cmd string, err error, stderr interface{ Write([]byte) (int, er
 		return exitUsage
 	}
 	return fail(stderr, err)
+}
+
+// connectQueue connects to the queue with a context that ends on an
+// interrupt or a termination signal; deadline (0: the default) is how long
+// a coordinator waits for results. done closes the connection and stops
+// catching the signals.
+func connectQueue(cfg queue.Config, deadline time.Duration) (ctx context.Context, c *queue.Client, done func(), err error) {
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	c, err = queue.Connect(ctx, cfg)
+	if err != nil {
+		stop()
+		return nil, nil, nil, err
+	}
+	c.JobDeadline = deadline
+	return ctx, c, func() { c.Close(); stop() }, nil
 }

@@ -5,9 +5,7 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"os/signal"
 	"runtime"
-	"syscall"
 	"time"
 
 	"ordplan/plan"
@@ -75,13 +73,11 @@ func runWorker(args []string, stdout, stderr io.Writer, hold time.Duration) int 
 	if err != nil {
 		return usageOrFail("worker", err, stderr)
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
-	defer stop()
-	c, err := queue.Connect(ctx, cfg)
+	ctx, c, done, err := connectQueue(cfg, 0)
 	if err != nil {
 		return fail(stderr, err)
 	}
-	defer c.Close()
+	defer done()
 	w := &queue.Worker{Client: c, Name: *name, CacheDir: *cache, Jobs: *jobs, AckWait: *ackWait, Delay: hold,
 		Limits: queue.Limits{Starts: *maxStarts, Iterations: *maxIter, Predictors: *maxPred, DataBytes: *maxData << 20}}
 	if !*quiet {
@@ -99,14 +95,11 @@ func runPlan(p *plan.Plan, opt runner.Options, cfg *queue.Config, deadline time.
 	if cfg == nil {
 		return runner.Run(p, opt)
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
-	defer stop()
-	c, err := queue.Connect(ctx, *cfg)
+	ctx, c, done, err := connectQueue(*cfg, deadline)
 	if err != nil {
 		return nil, err
 	}
-	defer c.Close()
-	c.JobDeadline = deadline
+	defer done()
 	return runOnQueue(ctx, c, p, opt, log)
 }
 
