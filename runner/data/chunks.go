@@ -84,9 +84,26 @@ func forEach(n int, f func(i int)) {
 // an odd number of quote characters, or a delimiter the line splitting
 // does not handle.
 func (r *reader) chunked(raw []byte, body int) (d *Dataset, done bool, err error) {
+	chunks, ok := r.lineChunks(raw, body)
+	if !ok {
+		return nil, false, nil
+	}
+	rows := 0
+	for i := range chunks {
+		chunks[i].row0 = rows
+		rows += chunks[i].lines
+	}
+	return r.chunkRows(raw, chunks, rows)
+}
+
+// lineChunks cuts the rows after the header (which end at byte body of
+// raw) into chunks, with their lines counted; false when the file must be
+// read record by record: a line with an odd number of quote characters,
+// or a delimiter the line splitting does not handle.
+func (r *reader) lineChunks(raw []byte, body int) ([]chunk, bool) {
 	delim := r.opt.Dialect.delim()
 	if delim >= 0x80 || delim == '"' || delim == '\r' || delim == '\n' {
-		return nil, false, nil
+		return nil, false
 	}
 	chunks := cutChunks(raw, body)
 	var odd atomic.Bool
@@ -103,14 +120,19 @@ func (r *reader) chunked(raw []byte, body int) (d *Dataset, done bool, err error
 		}
 	})
 	if odd.Load() {
-		return nil, false, nil
+		return nil, false
 	}
-	line, rows := 1+bytes.Count(raw[:body], []byte{'\n'}), 0
+	line := 1 + bytes.Count(raw[:body], []byte{'\n'})
 	for i := range chunks {
-		chunks[i].line, chunks[i].row0 = line, rows
+		chunks[i].line = line
 		line += chunks[i].ends
-		rows += chunks[i].lines
 	}
+	return chunks, true
+}
+
+// chunkRows reads the rows of the chunks (rows slots in all) into the
+// data set.
+func (r *reader) chunkRows(raw []byte, chunks []chunk, rows int) (*Dataset, bool, error) {
 	out := r.newDataset()
 	t := r.newRowTally(out.K)
 	a := r.newArrays(rows, out.K)
@@ -120,28 +142,41 @@ func (r *reader) chunked(raw []byte, body int) (d *Dataset, done bool, err error
 		c.t.codes = a.codes[c.row0:c.row0:(c.row0 + c.lines)]
 	}
 	fast := r.newFastPlan(t)
-	var firstErr atomic.Int64
-	firstErr.Store(int64(len(chunks)))
-	forEach(len(chunks), func(i int) {
-		if int64(i) > firstErr.Load() {
-			return // an earlier chunk failed: this one cannot matter
+	if f := forEachUntil(len(chunks), func(i int) error {
+		chunks[i].err = r.parseChunk(&chunks[i], raw, fast)
+		return chunks[i].err
+	}); f >= 0 {
+		return nil, true, chunks[f].err
+	}
+	a.join(out, t, chunks)
+	d, err := r.finish(t, out)
+	return d, true, err
+}
+
+// forEachUntil runs f(0), ..., f(n-1) on the workers, skipping those after
+// one that failed, and returns the first i (in order) whose f failed, or
+// -1: what f(i) did for that i and all before it is complete, so the
+// result does not depend on the workers.
+func forEachUntil(n int, f func(i int) error) int {
+	var first atomic.Int64
+	first.Store(int64(n))
+	forEach(n, func(i int) {
+		if int64(i) > first.Load() {
+			return // an earlier one failed: this one cannot matter
 		}
-		c := &chunks[i]
-		if c.err = r.parseChunk(c, raw, fast); c.err != nil {
+		if f(i) != nil {
 			for {
-				f := firstErr.Load()
-				if int64(i) >= f || firstErr.CompareAndSwap(f, int64(i)) {
+				at := first.Load()
+				if int64(i) >= at || first.CompareAndSwap(at, int64(i)) {
 					break
 				}
 			}
 		}
 	})
-	if f := int(firstErr.Load()); f < len(chunks) {
-		return nil, true, chunks[f].err
+	if at := int(first.Load()); at < n {
+		return at
 	}
-	a.join(out, t, chunks)
-	d, err = r.finish(t, out)
-	return d, true, err
+	return -1
 }
 
 // cutChunks cuts raw[body:] into pieces of about chunkBytes that end at a

@@ -10,7 +10,6 @@ import (
 	"slices"
 	"strconv"
 	"strings"
-	"sync/atomic"
 
 	"github.com/parquet-go/parquet-go"
 )
@@ -411,22 +410,10 @@ func (r *reader) parallelRows(c *columnRecords) (d *Dataset, done bool, err erro
 		chunks[i].t.codes = a.codes[u.first:u.first:(u.first + n)]
 	}
 	fast := r.newFastPlan(t)
-	var firstErr atomic.Int64
-	firstErr.Store(int64(len(units)))
-	forEach(len(units), func(i int) {
-		if int64(i) > firstErr.Load() {
-			return
-		}
-		if chunks[i].err = r.readUnit(c, units[i], used, &chunks[i], fast); chunks[i].err != nil {
-			for {
-				f := firstErr.Load()
-				if int64(i) >= f || firstErr.CompareAndSwap(f, int64(i)) {
-					break
-				}
-			}
-		}
-	})
-	if f := int(firstErr.Load()); f < len(units) {
+	if f := forEachUntil(len(units), func(i int) error {
+		chunks[i].err = r.readUnit(c, units[i], used, &chunks[i], fast)
+		return chunks[i].err
+	}); f >= 0 {
 		return nil, true, chunks[f].err
 	}
 	a.join(out, t, chunks)

@@ -2,6 +2,7 @@ package data
 
 import (
 	"errors"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -63,4 +64,51 @@ func TestValidateAgainstDictionary(t *testing.T) {
 	if strings.Join(got, "\n") != strings.Join(want, "\n") || ve.Total != 3 {
 		t.Errorf("got\n%s\nwant\n%s", strings.Join(got, "\n"), strings.Join(want, "\n"))
 	}
+}
+
+// The dictionary check reads a CSV file in chunks on the workers: the same
+// problems, in file order, the same count and the same first unreadable
+// line as one chunk read in order, whatever the chunk size; a file whose
+// quoted field spans lines (read record by record) gets the same answer
+// for the same lines.
+func TestValidateInChunks(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("a,b,c\n")
+	for i := 0; i < 400; i++ {
+		switch {
+		case i%37 == 5:
+			fmt.Fprintf(&b, "%d.5,\"x,y\",1\n", i) // above the range
+		case i%53 == 7:
+			b.WriteString("abc,1,2\n") // not a number
+		case i%41 == 3:
+			b.WriteString("0.5,7,\"q\"\n") // not among the values
+		case i%29 == 1:
+			b.WriteString("-9,-9,\r\n") // missing codes, a CRLF line end
+		default:
+			fmt.Fprintf(&b, "0.%d,1,z\n", i)
+		}
+	}
+	rules := []Rule{
+		{Column: "a", Key: "dictionary.a", Numeric: true, Range: []float64{0, 1}, Missing: []string{"-9"}},
+		{Column: "b", Key: "dictionary.b", Numeric: true, Values: []string{"1", "2"}, Missing: []string{"-9"}},
+	}
+	check := func(body string) {
+		t.Helper()
+		path := writeTemp(t, "v.csv", body)
+		var want string
+		withChunks(1<<30, 1, func() { want = fmt.Sprint(Validate(path, rules, nil)) })
+		if !strings.Contains(want, "problem(s) in all") && !strings.Contains(want, "fields") {
+			t.Fatalf("too few problems to test: %s", want)
+		}
+		for _, size := range []int{1, 17, 200, 4096} {
+			withChunks(size, 3, func() {
+				if got := fmt.Sprint(Validate(path, rules, nil)); got != want {
+					t.Fatalf("chunks of %d bytes:\n%s\nwant\n%s", size, got, want)
+				}
+			})
+		}
+	}
+	check(b.String())
+	check(b.String() + "0.1,1\n0.2,1,2\n")                // a short line: the first unreadable line wins
+	check(b.String() + "0.1,1,\"spans\nlines\"\n3,3,3\n") // read record by record
 }

@@ -1,6 +1,8 @@
 package data
 
 import (
+	"bytes"
+	"encoding/csv"
 	"fmt"
 	"io"
 	"strconv"
@@ -47,30 +49,40 @@ func Validate(path string, rules []Rule, missingTokens []string) error {
 	return ValidateDialect(path, rules, missingTokens, Dialect{})
 }
 
-// ValidateDialect is Validate for a file in the given dialect.
+// ValidateDialect is Validate for a file in the given dialect. A CSV
+// file is read whole (once, or its pinned bytes) and its lines checked in
+// chunks on the workers, as Load reads them (chunks.go); the problems are
+// joined in file order. Other formats, and CSV files whose quoted fields
+// span lines, are read record by record.
 func ValidateDialect(path string, rules []Rule, missingTokens []string, d Dialect) error {
-	f, err := openData(path)
-	if err != nil {
-		return err
-	}
-	defer f.Close()
 	r := &reader{file: path, opt: Options{MissingTokens: missingTokens, ColumnMissing: map[string][]string{}, Dialect: d}}
 	r.missing = r.opt.missingSet()
 	for _, ru := range rules {
 		r.opt.ColumnMissing[ru.Column] = ru.Missing
 	}
-	if err := r.start(f); err != nil {
+	var in io.Reader
+	if IsParquet(path) || IsWorkbook(path) {
+		f, err := openData(path)
+		if err != nil {
+			return err
+		}
+		defer f.Close()
+		in = f
+	} else {
+		raw, err := fileBytes(path)
+		if err != nil {
+			return err
+		}
+		r.raw, in = raw, bytes.NewReader(raw)
+	}
+	if err := r.start(in); err != nil {
 		return err
 	}
-	_, where, err := r.names()
+	names, where, err := r.names()
 	if err != nil {
 		return err
 	}
-	type ruled struct {
-		Rule
-		index  int
-		values map[float64]bool
-	}
+	r.width = len(names)
 	var cols []ruled
 	for _, ru := range rules {
 		j, ok := where[ru.Column]
@@ -89,10 +101,59 @@ func ValidateDialect(path string, rules []Rule, missingTokens []string, d Dialec
 		cols = append(cols, c)
 	}
 	ve := &ValidationError{File: path}
+	if cr, ok := r.cr.(*csv.Reader); ok && r.raw != nil {
+		body := int(cr.InputOffset())
+		if bytes.HasPrefix(r.raw, utf8BOM) {
+			body += len(utf8BOM)
+		}
+		if chunks, ok := r.lineChunks(r.raw, body); ok {
+			found := make([]ValidationError, len(chunks))
+			if f := forEachUntil(len(chunks), func(i int) error {
+				c := &chunks[i]
+				lr := &lineRecords{s: string(r.raw[c.lo:c.hi]), line: c.line - 1, delim: byte(r.opt.Dialect.delim()), quotes: c.quotes, width: r.width}
+				cr := *r
+				cr.cr = lr
+				c.err = cr.validateRecords(cols, &found[i])
+				return c.err
+			}); f >= 0 {
+				return chunks[f].err
+			}
+			for _, fv := range found {
+				ve.Total += fv.Total
+				ve.Problems = append(ve.Problems, fv.Problems[:min(len(fv.Problems), MaxProblems-len(ve.Problems))]...)
+			}
+			return ve.result()
+		}
+	}
+	if err := r.validateRecords(cols, ve); err != nil {
+		return err
+	}
+	return ve.result()
+}
+
+// ruled is a column the dictionary rules, with its place in the header.
+type ruled struct {
+	Rule
+	index  int
+	values map[float64]bool
+}
+
+// result is the error of the problems found, nil when none.
+func (e *ValidationError) result() error {
+	if e.Total > 0 {
+		return e
+	}
+	return nil
+}
+
+// validateRecords checks the ruled cells of the records of r.cr, adding
+// the problems to ve (the first MaxProblems, and the count of all); a
+// record that cannot be read is the error returned.
+func (r *reader) validateRecords(cols []ruled, ve *ValidationError) error {
 	for {
 		rec, err := r.cr.Read()
 		if err == io.EOF {
-			break
+			return nil
 		}
 		if err != nil {
 			return r.csvErr(err, rec)
@@ -126,10 +187,6 @@ func ValidateDialect(path string, rules []Rule, missingTokens []string, d Dialec
 			}
 		}
 	}
-	if ve.Total > 0 {
-		return ve
-	}
-	return nil
 }
 
 func fmtG(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
