@@ -180,3 +180,39 @@ func TestNegativeProbabilityRowStops(t *testing.T) {
 		t.Errorf("rows outside the subset: %v", err)
 	}
 }
+
+// TestRowsOutsideSubsetWithoutValidModel: the stated nonparallel effect
+// of x (0 and 0.3) makes the boundaries cross for large x, beyond the
+// subset x <= 0.5, where the calibration sample is drawn; the rows there
+// are never analysed, so the simulation goes on and leaves their outcome
+// empty (missing) instead of stopping or giving them a category, while
+// every row the subset keeps gets one.
+func TestRowsOutsideSubsetWithoutValidModel(t *testing.T) {
+	src := strings.Replace(subsetPopPlan, "predictors: [age]", "predictors: [x]", 1)
+	src = strings.Replace(src, "{column: age, at_least: 30}", "{column: x, at_most: 0.5}", 1)
+	src = strings.Replace(src, "  age: {range: [0, 100]}", "  x: {label: X}", 1)
+	src = strings.Replace(src, "    age: {mean: 35, sd: 15}", "    x: {mean: 0, sd: 1}", 1)
+	src = strings.Replace(src, "y: {proportions: [0.5, 0.3, 0.2], effects: {age: 0.08}}", "y: {proportions: [0.45, 0.1, 0.45], nonparallel: {x: [0, 0.3]}}", 1)
+	sim, err := New(parsePlan(t, src))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var buf bytes.Buffer
+	if err := sim.Write(&buf, 2000, 0); err != nil {
+		t.Fatal(err)
+	}
+	empty := 0
+	for _, l := range strings.Split(strings.TrimSpace(buf.String()), "\n")[1:] {
+		f := strings.Split(l, ",")
+		if f[0] == "" {
+			empty++
+			if x := parseNum(t, f[1]); x <= 0.5 {
+				t.Errorf("row %q inside the subset has no category", l)
+			}
+		}
+	}
+	if empty == 0 {
+		t.Error("no row beyond the crossing point: the test does not reach the case")
+	}
+	t.Logf("%d of 2000 rows outside the subset left without a category", empty)
+}
