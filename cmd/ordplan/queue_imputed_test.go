@@ -17,8 +17,9 @@ import (
 // ordered categories from a cumulative logit in x (numeric) and g (three
 // levels), with y, x and g missing in some rows; d.csv is the original
 // data, stacked.csv three imputed sets of it (the missing cells drawn
-// afresh in each), and two plans: chained.yaml imputes d.csv itself
-// (data.missing: impute), stacked.yaml analyses stacked.csv. Both have a
+// afresh in each), dw.csv d.csv with frequency weights, and three plans:
+// chained.yaml imputes d.csv itself (data.missing: impute), stacked.yaml
+// analyses stacked.csv, weighted.yaml imputes dw.csv. Both have a
 // term with a sample mean, frozen on imputed set 1.
 func writeImputedFixture(t *testing.T) string {
 	t.Helper()
@@ -34,6 +35,8 @@ func writeImputedFixture(t *testing.T) string {
 		miss [3]bool
 	}
 	rows := make([]row, 200)
+	var weighted strings.Builder
+	weighted.WriteString("y,x,g,w\n")
 	for i := range rows {
 		x := rng.NormFloat64()
 		g := rng.IntN(3)
@@ -54,6 +57,7 @@ func writeImputedFixture(t *testing.T) string {
 			}
 		}
 		orig.WriteString(strings.Join(cells, ",") + "\n")
+		fmt.Fprintf(&weighted, "%s,%d\n", strings.Join(cells, ","), 1+i%3)
 	}
 	for k := 1; k <= 3; k++ {
 		for _, r := range rows {
@@ -79,10 +83,12 @@ rules:
   - choose: {by: bic}
 `
 	files := map[string]string{
-		"d.csv":        orig.String(),
-		"stacked.csv":  stack.String(),
-		"chained.yaml": "version: 1\ntitle: imputed here\nseed: 5\ndata:\n  file: d.csv\n  missing: impute\n  imputation: {sets: 3, iterations: 2}\n" + rest,
-		"stacked.yaml": "version: 1\ntitle: imputed elsewhere\ndata:\n  file: d.csv\n  imputed: {file: stacked.csv, column: imp}\n" + rest,
+		"d.csv":         orig.String(),
+		"stacked.csv":   stack.String(),
+		"chained.yaml":  "version: 1\ntitle: imputed here\nseed: 5\ndata:\n  file: d.csv\n  missing: impute\n  imputation: {sets: 3, iterations: 2}\n" + rest,
+		"stacked.yaml":  "version: 1\ntitle: imputed elsewhere\ndata:\n  file: d.csv\n  imputed: {file: stacked.csv, column: imp}\n" + rest,
+		"dw.csv":        weighted.String(),
+		"weighted.yaml": "version: 1\ntitle: imputed here, counts\nseed: 5\ndata:\n  file: dw.csv\n  weights: w\n  missing: impute\n  imputation: {sets: 3, iterations: 2}\n" + rest,
 	}
 	for name, s := range files {
 		if err := os.WriteFile(filepath.Join(dir, name), []byte(s), 0o644); err != nil {
@@ -96,7 +102,8 @@ rules:
 // files as a local run, byte for byte, although the worker holding a job
 // is killed: sets imputed by the program (handed to the workers as data
 // files) and sets named in a stacked file, the design frozen on set 1 in
-// every job.
+// every job; and sets imputed from frequency-weighted data (each row
+// expanded into as many rows as its weight).
 func TestQueueRunImputedData(t *testing.T) {
 	if testing.Short() {
 		t.Skip("starts worker processes")
@@ -105,7 +112,7 @@ func TestQueueRunImputedData(t *testing.T) {
 	url := localserver.ForTest(t)
 	victim := startWorkerProc(t, url, "victim", holdEnv+"=60s")
 	var w1, w2 *proc
-	for _, name := range []string{"chained", "stacked"} {
+	for _, name := range []string{"chained", "stacked", "weighted"} {
 		plan := filepath.Join(dir, name+".yaml")
 		local, remote := filepath.Join(dir, name+"-local"), filepath.Join(dir, name+"-queue")
 		if out, errs, code := runCLI("run", plan, "--out", local, "--quiet"); code != 0 {
