@@ -61,11 +61,7 @@ tests: {parallel_lines: [lr, wald]}
 rules:
   - choose: {by: bic}
 `
-	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644)
-	p, err := plan.Load(filepath.Join(dir, "p.yaml"))
-	if err != nil {
-		t.Fatal(err)
-	}
+	p := planIn(t, dir, src)
 	return p
 }
 

@@ -481,11 +481,7 @@ models: {approaches: [cumulative], effects: [parallel, partial, nonparallel], pa
 rules:
   - choose: {by: aic}
 `
-			os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644)
-			p, err := plan.Load(filepath.Join(dir, "p.yaml"))
-			if err != nil {
-				t.Fatal(err)
-			}
+			p := planIn(t, dir, src)
 			return p
 		}
 		dir := imputedFixture(t, 3, true)

@@ -7,8 +7,6 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
-
-	"ordplan/plan"
 )
 
 // The plan's inference section on the General Social Survey extract (Long
@@ -35,11 +33,7 @@ inference:
   profile: {age: 30}
   predict: new.csv
 `
-	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644)
-	p, err := plan.Load(filepath.Join(dir, "p.yaml"))
-	if err != nil {
-		t.Fatal(err)
-	}
+	p := planIn(t, dir, src)
 	r := runPlan(t, p, 0)
 	or := r.Outcomes[0]
 	var found bool

@@ -41,11 +41,7 @@ rules:
 covariance: clustered
 `
 	run := func(extra string) *OutcomeResult {
-		os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(strings.Replace(base, "%s", extra, 1)), 0o644)
-		p, err := plan.Load(filepath.Join(dir, "p.yaml"))
-		if err != nil {
-			t.Fatal(err)
-		}
+		p := planIn(t, dir, strings.Replace(base, "%s", extra, 1))
 		r, err := Run(p, Options{})
 		if err != nil {
 			t.Fatal(err)
@@ -105,11 +101,7 @@ rules:
   - choose: {by: bic}
 %s`
 	chi := func(data, cov string) float64 {
-		os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(fmt.Sprintf(base, data, cov)), 0o644)
-		p, err := plan.Load(filepath.Join(dir, "p.yaml"))
-		if err != nil {
-			t.Fatal(err)
-		}
+		p := planIn(t, dir, fmt.Sprintf(base, data, cov))
 		r, err := Run(p, Options{})
 		if err != nil {
 			t.Fatal(err)

@@ -152,11 +152,7 @@ rules:
   - reject_negative_probabilities: true
   - choose: {by: bic}
 `
-	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644)
-	p, err := plan.Load(filepath.Join(dir, "p.yaml"))
-	if err != nil {
-		t.Fatal(err)
-	}
+	p := planIn(t, dir, src)
 	r := runPlan(t, p, 0)
 	or := r.Outcomes[0]
 	f := or.Find("cumulative/nonparallel/logit")
@@ -217,11 +213,7 @@ rules:
   - reject_if_sparse: {smallest_category: 30, within: site}
   - choose: {by: aic, otherwise: cumulative/parallel/logit}
 `
-	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644)
-	p, err := plan.Load(filepath.Join(dir, "p.yaml"))
-	if err != nil {
-		t.Fatal(err)
-	}
+	p := planIn(t, dir, src)
 	or := runPlan(t, p, 0).Outcomes[0]
 	// Count by hand.
 	counts := map[string][]int{}

@@ -261,3 +261,12 @@ func loadPlanFile(t *testing.T, path string) *plan.Plan {
 	}
 	return p
 }
+
+// planIn writes the plan src as dir/p.yaml and loads it.
+func planIn(t *testing.T, dir, src string) *plan.Plan {
+	t.Helper()
+	if err := os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return loadPlanFile(t, filepath.Join(dir, "p.yaml"))
+}
