@@ -406,7 +406,8 @@ func TestImputedBadInput(t *testing.T) {
 // read like its data, through the file's format and dialect: the same sets
 // as an .xlsx workbook (header in row 2 of a named sheet) and as
 // semicolon-separated text with decimal commas give the fits of the CSV
-// file, bit for bit.
+// file, bit for bit; and each, run through an executor (as on a queue,
+// the file handed over and read elsewhere), gives the local decisions.
 func TestImputedStackedWorkbook(t *testing.T) {
 	dir := imputedFixture(t, 3, false)
 	raw, err := os.ReadFile(filepath.Join(dir, "stacked.csv"))
@@ -451,6 +452,18 @@ func TestImputedStackedWorkbook(t *testing.T) {
 		f := r.Outcomes[0].Find("cumulative/nonparallel/logit")
 		if r.Outcomes[0].Imputed == nil || r.Outcomes[0].Imputed.M != 3 || !f.OK() {
 			t.Fatalf("%s: imputed run %+v", data, r.Outcomes[0].Imputed)
+		}
+		// The same sets read elsewhere (a worker reads the file handed over,
+		// with the plan's sheet, header row, delimiter and decimal mark).
+		ex := &holdingExecutor{gobExecutor: gobExecutor{p.Data.Path}, dir: t.TempDir(), files: map[string]string{}}
+		rq, err := Run(p, Options{Workers: 1, Executor: ex})
+		if err != nil {
+			t.Fatalf("%s through an executor: %v", data, err)
+		}
+		a, _ := MarshalStable(BuildDecisions(r))
+		b, _ := MarshalStable(BuildDecisions(rq))
+		if len(ex.jobs) == 0 || string(a) != string(b) {
+			t.Errorf("%s: %d jobs; decisions differ through an executor", data, len(ex.jobs))
 		}
 		return append(f.Result.Estimates, f.Result.StdErrors...)
 	}
