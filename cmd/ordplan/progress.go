@@ -22,6 +22,7 @@ type progress struct {
 	mu      sync.Mutex
 	outcome string
 	start   time.Time // of the current outcome's grid
+	prev    time.Time // of the last step heard
 	last    time.Time // last plain line
 	width   int       // of the last live line
 }
@@ -34,7 +35,7 @@ func stderrProgress(stderr io.Writer) *progress {
 
 func newProgress(w io.Writer, live bool, now func() time.Time) *progress {
 	t := now()
-	return &progress{w: w, live: live, now: now, every: 5 * time.Second, start: t, last: t}
+	return &progress{w: w, live: live, now: now, every: 5 * time.Second, start: t, prev: t, last: t}
 }
 
 // Fitted implements runner.Progress.
@@ -59,11 +60,11 @@ func (p *progress) step(outcome, things string, done, total int) {
 	defer p.mu.Unlock()
 	t := p.now()
 	if outcome != p.outcome {
-		if p.outcome != "" {
-			p.start = t
-		}
-		p.outcome = outcome
+		// A new stage began when the one before ended: its first step's
+		// time counts.
+		p.start, p.outcome = p.prev, outcome
 	}
+	p.prev = t
 	elapsed := t.Sub(p.start)
 	line := fmt.Sprintf("%s: %d of %d %s, %s elapsed", outcome, done, total, things, roundDur(elapsed))
 	if done < total && done > 0 {

@@ -32,6 +32,19 @@ func TestProgressPlainLines(t *testing.T) {
 	}
 }
 
+// A second stage's time runs from the end of the first, so its first
+// step's time is counted.
+func TestProgressSecondStage(t *testing.T) {
+	var b bytes.Buffer
+	p := newProgress(&b, false, fakeClock(time.Second))
+	p.Replicated(120, 1, 1)
+	p.Replicated(240, 1, 2)
+	p.Replicated(240, 2, 2)
+	if want := "n = 120: 1 of 1 replicates, 1s elapsed\nn = 240: 2 of 2 replicates, 2s elapsed\n"; b.String() != want {
+		t.Errorf("got\n%s\nwant\n%s", b.String(), want)
+	}
+}
+
 // On a terminal: one line rewritten in place, with the estimate of the
 // time left, ended by a newline when the grid is done.
 func TestProgressLiveLine(t *testing.T) {
