@@ -316,10 +316,8 @@ func (d *Data) validate() error {
 			return inputErr("row %d: offset %g is not finite", i+1, d.Offset[i])
 		}
 	}
-	for i, v := range d.X {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
-			return inputErr("row %d: predictor %q has the non-finite value %g", i/K+1, d.Predictors[i%K], v)
-		}
+	if i := firstNonFinite(d.X); i >= 0 {
+		return inputErr("row %d: predictor %q has the non-finite value %g", i/K+1, d.Predictors[i%K], d.X[i])
 	}
 	lv := d.categories()
 	for c, n := range counts {
@@ -335,6 +333,28 @@ func (d *Data) validate() error {
 		seen[p] = true
 	}
 	return nil
+}
+
+// firstNonFinite is the index of the first NaN or infinite value of x, or
+// -1; parts of x are searched in parallel.
+func firstNonFinite(x []float64) int {
+	const part = 1 << 16
+	first := make([]int, (len(x)+part-1)/part)
+	forEach(len(first), 0, func(p int) {
+		first[p] = -1
+		for i := p * part; i < min(len(x), (p+1)*part); i++ {
+			if math.IsNaN(x[i]) || math.IsInf(x[i], 0) {
+				first[p] = i
+				return
+			}
+		}
+	})
+	for _, i := range first {
+		if i >= 0 {
+			return i
+		}
+	}
+	return -1
 }
 
 // startValues: cutpoints from the marginal distribution with zero slopes.
