@@ -425,6 +425,8 @@ func (r *reader) parallelRows(c *columnRecords) (d *Dataset, done bool, err erro
 // after page.
 type columnValues struct {
 	pages   parquet.Pages
+	page    parquet.Page   // the page being read
+	done    []parquet.Page // pages read to their end, whose values the batch may still hold
 	vr      parquet.ValueReader
 	doubles []float64 // a required double column read as numbers: the batch's values (else nil)
 }
@@ -442,18 +444,37 @@ func (cv *columnValues) fill(n int, take func(vr parquet.ValueReader, from, to i
 				}
 				return &Error{Msg: "is not a readable Parquet file (" + err.Error() + ")"}
 			}
-			cv.vr = p.Values()
+			cv.page, cv.vr = p, p.Values()
 		}
 		k, err := take(cv.vr, at, n)
 		at += k
 		switch {
 		case errors.Is(err, io.EOF):
-			cv.vr = nil
+			cv.done = append(cv.done, cv.page)
+			cv.page, cv.vr = nil, nil
 		case err != nil:
 			return &Error{Msg: "is not a readable Parquet file (" + err.Error() + ")"}
 		}
 	}
 	return nil
+}
+
+// release gives the pages read to their end back to parquet-go's buffers,
+// once the values read from them are no longer used.
+func (cv *columnValues) release() {
+	for _, p := range cv.done {
+		parquet.Release(p)
+	}
+	cv.done = cv.done[:0]
+}
+
+// close releases every page and closes the chunk's pages.
+func (cv *columnValues) close() {
+	cv.release()
+	if cv.page != nil {
+		parquet.Release(cv.page)
+	}
+	cv.pages.Close()
 }
 
 // read fills buf with the next values: as numbers into cv.doubles for a
@@ -502,7 +523,7 @@ func (r *reader) readUnit(c *columnRecords, u columnUnit, used []int, ch *chunk,
 	vals := make([][]parquet.Value, len(used))
 	for k, ci := range used {
 		cols[k].pages = chunks[ci].Pages()
-		defer cols[k].pages.Close()
+		defer cols[k].close()
 		if err := cols[k].pages.SeekToRow(u.lo); err != nil {
 			return &Error{Msg: "is not a readable Parquet file (" + err.Error() + ")"}
 		}
@@ -524,6 +545,7 @@ func (r *reader) readUnit(c *columnRecords, u columnUnit, used []int, ch *chunk,
 	for at := u.lo; at < u.hi; {
 		b := int(min(batch, u.hi-at))
 		for k := range cols {
+			cols[k].release() // the previous batch is done with
 			if err := cols[k].read(vals[k][:b]); err != nil {
 				return err
 			}
