@@ -12,7 +12,6 @@ import (
 	"slices"
 	"strconv"
 	"strings"
-	"syscall"
 	"time"
 
 	"ordplan/runner/fit"
@@ -202,9 +201,9 @@ func wholeProcess(d *fit.Data, repeats int) (wholeRun, error) {
 		if out, err := cmd.CombinedOutput(); err != nil {
 			errRun = fmt.Errorf("%v: %s", err, out)
 		}
-		if ru, ok := cmd.ProcessState.SysUsage().(*syscall.Rusage); ok {
-			cpus = append(cpus, time.Duration(ru.Utime.Nano()+ru.Stime.Nano()).Seconds())
-			wr.rss = max(wr.rss, ru.Maxrss*1024) // kilobytes on Linux
+		if ps := cmd.ProcessState; ps != nil {
+			cpus = append(cpus, (ps.UserTime() + ps.SystemTime()).Seconds())
+			wr.rss = max(wr.rss, peakRSS(ps))
 		}
 	})
 	if len(cpus) > 0 {
