@@ -70,6 +70,14 @@ func (o Options) screenAbove() int {
 	return o.ScreenAbove
 }
 
+// subsampleAbove is SubsampleAbove with its default.
+func (o Options) subsampleAbove() int {
+	if o.SubsampleAbove == 0 {
+		return defaultSubsampleAbove
+	}
+	return o.SubsampleAbove
+}
+
 // N is the number of rows.
 func (d *Data) N() int { return len(d.Y) }
 
@@ -89,6 +97,11 @@ type Options struct {
 	// approximation around the unconstrained partial fit first. 0 means
 	// 5000; a negative number screens at any size.
 	ScreenAbove int
+	// SubsampleAbove: a fit on at least this many rows (after merging
+	// repeated rows) without a Start begins its full-data Newton
+	// iterations at the maximum on a fixed subsample (subsample.go).
+	// 0 means 200000; a negative number never.
+	SubsampleAbove int
 	// Sandwich, when set, replaces the covariance of every usable fit that
 	// Stepwise makes before it tests (robust or cluster-robust errors).
 	// Fit itself ignores it.
@@ -228,7 +241,7 @@ func fitValid(d *Data, m Model, opt Options, sh *shared) (*Result, error) {
 		start = startValues(d, m, ly)
 		// A fit that is not usable from there is made again from the
 		// usual start, so that it reads as it does without the stage.
-		if st, ok := pr.subsampleNewton(sh.subsample(d), start, opt); ok {
+		if st, ok := pr.subsampleNewton(sh.subsample(d, opt), start, opt); ok {
 			if res, err := finish(localSource(d, pr, sd), m, ly, st, opt); err == nil && res.OK() {
 				return res, nil
 			}

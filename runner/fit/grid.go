@@ -42,9 +42,10 @@ func (sh *shared) design(d *Data) *design {
 }
 
 // subsample is the fixed subsample of d's compressed design (nil on
-// fewer rows than subsampleAbove), made once.
-func (sh *shared) subsample(d *Data) *design {
-	sh.subOnce.Do(func() { sh.sub = sh.design(d).subsample(d.J) })
+// fewer rows than the options' SubsampleAbove), made once: the fits of a
+// grid share one Options.
+func (sh *shared) subsample(d *Data, o Options) *design {
+	sh.subOnce.Do(func() { sh.sub = sh.design(d).subsample(d.J, o.subsampleAbove()) })
 	return sh.sub
 }
 

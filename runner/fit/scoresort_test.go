@@ -58,9 +58,7 @@ func TestSortByScoreStable(t *testing.T) {
 // predictor.
 func TestIndicatorsAsGroups(t *testing.T) {
 	// Fits of 1000 rows or more take the subsample stage (gsswarm).
-	old := subsampleAbove
-	subsampleAbove = 1000
-	t.Cleanup(func() { subsampleAbove = old })
+	opt := Options{SubsampleAbove: 1000}
 	for _, c := range []struct {
 		name   string
 		preds  []string
@@ -124,8 +122,8 @@ func TestIndicatorsAsGroups(t *testing.T) {
 			if k >= 0 {
 				m.Effects[k] = Nonparallel
 			}
-			a, errA := Fit(held, m, Options{})
-			b, errB := Fit(dense, m, Options{})
+			a, errA := Fit(held, m, opt)
+			b, errB := Fit(dense, m, opt)
 			if errA != nil || errB != nil {
 				t.Fatalf("%s: %v, %v", c.name, errA, errB)
 			}

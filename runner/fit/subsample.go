@@ -14,13 +14,12 @@ import "math/rand/v2"
 // not converge or is not usable (no finite maximum), the fit runs from the
 // usual start as if there were no subsample stage, so failures read
 // exactly as they do without it.
-// subsampleAbove is the number of rows (after merging repeated rows) from
-// which the subsample stage runs: below it, the subsample's iterations
-// would cost more than the full-data steps they save. (A variable so that
-// tests can run the stage on small data.)
-var subsampleAbove = 200_000
-
 const (
+	// defaultSubsampleAbove is Options.SubsampleAbove when it is 0: the
+	// number of rows (after merging repeated rows) from which the
+	// subsample stage runs; below it, the subsample's iterations would
+	// cost more than the full-data steps they save.
+	defaultSubsampleAbove = 200_000
 	// subsampleStride: the subsample has one row in subsampleStride.
 	subsampleStride = 20
 	// subsampleSeed fixes the rows drawn.
@@ -30,10 +29,11 @@ const (
 // subsample is the fixed subsample of the design's rows, whose outcome
 // has J categories: in each run of subsampleStride rows one drawn at
 // random, so that data sorted in any way are covered evenly. It is nil
-// below subsampleAbove rows, and when a category has no weight in the
-// subsample (its cutpoints would have no maximum there).
-func (d *design) subsample(J int) *design {
-	if d.n < subsampleAbove {
+// below above rows (never when above is negative), and when a category
+// has no weight in the subsample (its cutpoints would have no maximum
+// there).
+func (d *design) subsample(J, above int) *design {
+	if above < 0 || d.n < above {
 		return nil
 	}
 	rng := rand.New(rand.NewPCG(subsampleSeed, uint64(d.n)))

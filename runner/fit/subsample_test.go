@@ -5,14 +5,11 @@ import (
 	"testing"
 )
 
-// smallSubsample lets the subsample stage run from 20000 rows during a
-// test.
-func smallSubsample(t *testing.T) int {
-	old := subsampleAbove
-	subsampleAbove = 20_000
-	t.Cleanup(func() { subsampleAbove = old })
-	return subsampleAbove
-}
+// smallSubsample lets the subsample stage run from 20000 rows in a test:
+// the rows of its data, and the options that start the stage there.
+const smallSubsample = 20_000
+
+var smallSubsampleOpt = Options{SubsampleAbove: smallSubsample}
 
 // fitFromUsualStart fits m from the usual starting values given as the
 // user's start, which skips the subsample stage.
@@ -31,10 +28,10 @@ func fitFromUsualStart(t *testing.T, d *Data, m Model) (*Result, error) {
 // 1e-7 relative), with fewer full-data iterations, for every comparison,
 // with weights and an offset.
 func TestSubsampleStageSameMaximum(t *testing.T) {
-	d := synthData(77, smallSubsample(t), 3, 4, true, true)
+	d := synthData(77, smallSubsample, 3, 4, true, true)
 	for _, c := range allComparisons {
 		m := Model{Comparison: c.cmp, Backward: c.backward, Link: Logit, Effects: []Effect{Nonparallel, Parallel, Parallel}}
-		got, err := Fit(d, m, Options{})
+		got, err := Fit(d, m, smallSubsampleOpt)
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -64,11 +61,11 @@ func TestSubsampleStageSameMaximum(t *testing.T) {
 // or the data have no maximum (a predictor that separates a category), the
 // fit is the one from the usual start, field for field.
 func TestSubsampleStageFailureAsBefore(t *testing.T) {
-	n := smallSubsample(t)
+	n := smallSubsample
 	d := synthData(78, n, 3, 3, false, false)
 	// A fourth category on one row the subsample does not draw.
 	d.J = 4
-	sub := d.design().subsample(3)
+	sub := d.design().subsample(3, smallSubsample)
 	drawn := map[float64]bool{}
 	for i := 0; i < sub.n; i++ {
 		drawn[sub.x[i*sub.K]] = true
@@ -79,7 +76,7 @@ func TestSubsampleStageFailureAsBefore(t *testing.T) {
 	}
 	d.Y[rare] = 3
 	m := Model{Comparison: Cumulative, Link: Logit, Effects: []Effect{Parallel, Parallel, Parallel}}
-	got, err := Fit(d, m, Options{})
+	got, err := Fit(d, m, smallSubsampleOpt)
 	want, werr := fitFromUsualStart(t, d, m)
 	if dumpResult(got, err) != dumpResult(want, werr) {
 		t.Errorf("category missing from the subsample:\n%s\n%s", dumpResult(got, err), dumpResult(want, werr))
@@ -93,7 +90,7 @@ func TestSubsampleStageFailureAsBefore(t *testing.T) {
 			d.X[i*3] = -d.X[i*3]
 		}
 	}
-	got, err = Fit(d, m, Options{})
+	got, err = Fit(d, m, smallSubsampleOpt)
 	want, werr = fitFromUsualStart(t, d, m)
 	if got == nil || got.Status != StatusNoFiniteMaximum {
 		t.Fatalf("separated data: %s", dumpResult(got, err))
