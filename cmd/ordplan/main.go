@@ -138,14 +138,14 @@ type fitFlags struct {
 	queue                                                *queueFlags
 }
 
-// cmdFit fits one model from the command line, in phases: the flags, their
-// checks, the model they describe, the fit (here or over partitions), and
-// the table or JSON it prints.
 // fitGCPercent is the garbage collector's target of `ordplan fit`: a new
 // cycle when the heap has grown by this percentage of what the last one
 // kept.
 const fitGCPercent = 25
 
+// cmdFit fits one model from the command line, in phases: the flags, their
+// checks, the model they describe, the fit (here or over partitions), and
+// the table or JSON it prints.
 func cmdFit(args []string, stdout, stderr io.Writer) int {
 	fs := newFlags("fit", stderr)
 	f := defineFitFlags(fs)
