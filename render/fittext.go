@@ -137,7 +137,7 @@ func FitChecksText(w io.Writer, r *fit.Result, c *runner.SingleChecks, level flo
 		return nil
 	}
 	o := c.Overall
-	fmt.Fprintf(w, "\nAgainst the thresholds-only model (log-likelihood %s): %s\n", numfmt.Fixed(o.NullLogLik, 6), testText("LR", o.LR))
+	fmt.Fprintf(w, "\nAgainst the thresholds-only model (log-likelihood %s): %s\n", numfmt.Fixed(o.NullLogLik, 6), testText("likelihood-ratio", o.LR))
 	mz := ""
 	if !math.IsNaN(o.McKelveyZavoina) {
 		mz = ", McKelvey-Zavoina " + numfmt.Fixed(o.McKelveyZavoina, 4)

@@ -126,7 +126,7 @@ func TestFitTableAndFailures(t *testing.T) {
 // the Pulkstenis-Robinson tests; the same numbers are in its --json output.
 //
 // gsswarm (Long 1997; testdata/reference): the ordered logit of warm on
-// six predictors has LR chi2(6) = 301.72 and McFadden's R2 0.050
+// six predictors has a likelihood-ratio chi-square of 301.72 on 6 df and McFadden's R2 0.050
 // (published values, from memory: Long & Freese 2014, as in
 // runner/fit/overall_test.go).
 func TestFitPrintsChecks(t *testing.T) {
@@ -139,7 +139,7 @@ func TestFitPrintsChecks(t *testing.T) {
 	for _, want := range []string{
 		"Cumulative odds ratios, exp(b) (above 1: towards higher categories):",
 		"Against the thresholds-only model (log-likelihood ",
-		"LR chi2(6) = 301.7", // 301.716: the published 301.72 to its digits
+		"likelihood-ratio chi2(6) = 301.7", // 301.716: the published 301.72 to its digits
 		"Pseudo-R2: McFadden 0.05",
 		", McKelvey-Zavoina 0.",
 		"Lipsitz test (10 groups of predicted score): chi2(9) = ",

@@ -401,7 +401,7 @@ func TestFitPartitionsThroughWorkers(t *testing.T) {
 			dlz != "Lipsitz test: not tested: not computed for a fit over partitions: the test refits the model with indicators of groups of predicted score, which needs every row in one place" {
 			t.Errorf("%v: Lipsitz lines %q and %q", extra, llz, dlz)
 		}
-		for _, want := range []string{"Against the thresholds-only model (log-likelihood ", "LR chi2(", "Pseudo-R2: McFadden "} {
+		for _, want := range []string{"Against the thresholds-only model (log-likelihood ", "likelihood-ratio chi2(", "Pseudo-R2: McFadden "} {
 			if !strings.Contains(dist, want) {
 				t.Errorf("%v: the partitioned fit lacks %q:\n%s", extra, want, dist)
 			}
