@@ -137,14 +137,14 @@ func (d *Design) Matrix(raw []float64, n int) ([]float64, int, error) {
 }
 
 // Identity reports whether the design columns are the raw columns
-// themselves, in order: every term one numeric column as it is, so the
-// design matrix of raw rows is the raw rows.
+// themselves, in order: a Trivial design whose terms take the sources one
+// by one, so the design matrix of raw rows is the raw rows.
 func (d *Design) Identity() bool {
-	if len(d.Terms) != len(d.Sources) || len(d.Columns) != len(d.Sources) {
+	if !d.Trivial() || len(d.Terms) != len(d.Sources) || len(d.Columns) != len(d.Sources) {
 		return false
 	}
 	for k, t := range d.Terms {
-		if t.Kind != KindNumeric || t.Source != k || t.First != k || len(t.Columns) != 1 || !t.Transform.Empty() {
+		if t.Source != k || t.First != k || len(t.Columns) != 1 {
 			return false
 		}
 	}
