@@ -16,7 +16,8 @@ import (
 // nhanes (Schafer, J.L. (1997) Analysis of Incomplete Multivariate Data,
 // Chapman & Hall, Table 6.14, as mice's ?nhanes names it): five sets
 // imputed by mice, lm(chl ~ age + bmi + hyp) on each, pooled by mice's
-// pool(), pool.scalar and D2. testdata/nhanes.R is the script,
+// pool(), pool.scalar and D2, and D1 by mitml's testModels (the package
+// mice uses for its tests). testdata/nhanes.R is the script,
 // testdata/nhanes-mice.txt what it printed (with the R and mice versions
 // and the script's SHA-256), so the check runs without R; with R and mice
 // installed TestAgainstMiceNhanes runs the script again.
@@ -94,6 +95,20 @@ func checkNhanes(t *testing.T, v rscript.Values) float64 {
 	near(t, "D2 df2", d2.DF2, want[2], tol)
 	near(t, "D2 p", d2.P, want[3], tol)
 	near(t, "D2 r", d2.RIV, want[4], tol)
+	// D1 of bmi and hyp (mitml's testModels of the model against the one
+	// without them, no complete-data degrees of freedom): F, df1, df2, p, r.
+	C := make([]float64, 2*p.P)
+	C[2], C[p.P+3] = 1, 1
+	d1, err := D1(p, C, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want = v.Get(t, "d1")
+	near(t, "D1 F (mitml testModels)", d1.F, want[0], tol)
+	near(t, "D1 df1", float64(d1.DF1), want[1], 0)
+	near(t, "D1 df2", d1.DF2, want[2], tol)
+	near(t, "D1 p", d1.P, want[3], tol)
+	near(t, "D1 r", d1.RIV, want[4], tol)
 	return worst
 }
 
@@ -108,7 +123,7 @@ func version(v []float64) string {
 // TestRubinAgainstMiceFrozen: Rubin's rules (estimates, within, between
 // and total variance, Barnard-Rubin degrees of freedom, relative increase
 // in variance, lambda, fraction of missing information), PoolScalar with
-// finite complete-data degrees of freedom, and D2 agree with mice's values
+// finite complete-data degrees of freedom, D1 and D2 agree with mice's values
 // on nhanes, frozen in testdata by the script that sits beside them.
 func TestRubinAgainstMiceFrozen(t *testing.T) {
 	script, err := os.ReadFile(nhanesScript)

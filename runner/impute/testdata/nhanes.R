@@ -4,7 +4,10 @@
 # five imputed sets made by mice (seeded), lm(chl ~ age + bmi + hyp) on
 # each, pooled by pool(); pool.scalar for one coefficient with the
 # complete-data sample size; D2 (mice::D2, Wald statistics combined by
-# mitml) of bmi and hyp. Prints "name v1 v2 ..." lines with 17 significant
+# mitml) of bmi and hyp; D1 of bmi and hyp by mitml's testModels without
+# complete-data degrees of freedom (the F reference of Li, Raghunathan and
+# Rubin; mice::D1 passes the residual degrees of freedom and so gets a
+# small-sample denominator instead). Prints "name v1 v2 ..." lines with 17 significant
 # digits: the versions, every set's estimates and covariance, and what
 # mice computed from them.
 suppressPackageStartupMessages(library(mice))
@@ -36,3 +39,5 @@ out("scalar", c(ps$qbar, ps$ubar, ps$b, ps$t, ps$df, ps$r, ps$fmi))
 out("wald", wald)
 d2 <- D2(fit, fit0)
 out("d2", d2$result[1:5])
+d1 <- mitml::testModels(fit$analyses, fit0$analyses, method = "D1")
+out("d1", d1$test[1:5])
