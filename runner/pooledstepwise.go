@@ -29,14 +29,19 @@ func pooledStepwise(an *Analysis, or *OutcomeResult) fit.StepwiseFits {
 		pf, ok := fits[r]
 		return pf, ok
 	}
+	// Each set fits as a selection on one data set does (its fit and
+	// sandwich step), with that set's rows.
+	setFit := make([]func(fit.Model) (*fit.Result, error), len(im.Sets))
+	for k, d := range im.Sets {
+		opt := an.Fit
+		opt.Sandwich = an.Errors.Sandwich(im.Data[k], d)
+		setFit[k] = fit.DataStepwiseFits(d, opt).Fit
+	}
 	sf := fit.StepwiseFits{Predictors: or.FitData.Predictors}
 	sf.Fit = func(m fit.Model) (*fit.Result, error) {
 		per := make([]*fit.Result, len(im.Sets))
-		for k, d := range im.Sets {
-			r, err := fit.Fit(d, m, an.Fit)
-			if sw := an.Errors.Sandwich(im.Data[k], d); err == nil && sw != nil && r.OK() {
-				err = sw(r)
-			}
+		for k := range im.Sets {
+			r, err := setFit[k](m)
 			if err != nil {
 				return nil, fmt.Errorf("imputed set %d: %w", k+1, err)
 			}
