@@ -3,7 +3,9 @@ package render
 import (
 	"math"
 	"math/rand/v2"
+	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"ordplan/plan"
@@ -37,6 +39,17 @@ func renderPlan(t *testing.T, path string, workers int) map[string][]byte {
 	return outputsOf(t, runPlan(t, path, workers))
 }
 
+// renderSource writes the plan src as dir/p.yaml and renders it
+// (renderPlan).
+func renderSource(t *testing.T, dir, src string, workers int) map[string][]byte {
+	t.Helper()
+	path := filepath.Join(dir, "p.yaml")
+	if err := os.WriteFile(path, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return renderPlan(t, path, workers)
+}
+
 // outputsOf renders a run: the files it writes.
 func outputsOf(t *testing.T, res *runner.Result) map[string][]byte {
 	t.Helper()
@@ -61,4 +74,15 @@ func surveyRow(rng *rand.Rand) (y int, x1, x2 float64) {
 		}
 	}
 	return y, x1, x2
+}
+
+// hasAll reports each of wants that the rendered file name (its text doc)
+// does not contain.
+func hasAll(t *testing.T, name, doc string, wants ...string) {
+	t.Helper()
+	for _, want := range wants {
+		if !strings.Contains(doc, want) {
+			t.Errorf("%s lacks %q", name, want)
+		}
+	}
 }

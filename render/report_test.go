@@ -240,14 +240,10 @@ func TestFallbackNamedWhereTheChosenModelIs(t *testing.T) {
 	}
 	or.Fallback = true
 	md := string(build(res, runner.BuildDecisions(res), nil).markdown())
-	for _, want := range []string{
-		"### The chosen model: " + or.Chosen.ID + " (the plan's fallback)",
-		"so the model reported is " + or.Chosen.ID + ", the fallback the plan named for that case",
-	} {
-		if !strings.Contains(md, want) {
-			t.Errorf("report lacks %q", want)
-		}
-	}
+	hasAll(t, "report.md", md,
+		"### The chosen model: "+or.Chosen.ID+" (the plan's fallback)",
+		"so the model reported is "+or.Chosen.ID+", the fallback the plan named for that case",
+	)
 }
 
 // TestStackedLegendFollowsLayers: the legend of the stacked chart of
