@@ -81,6 +81,25 @@ func TestFitGridSameAsFit(t *testing.T) {
 	}
 }
 
+// TestFitGridSubsampleSameAsFit: with the subsample stage brought down to
+// the data's size (Options.SubsampleAbove), every fit of a grid is still
+// the fit Fit makes alone, bit for bit: the partial fit a constrained model
+// starts from is made with the same threshold in both.
+func TestFitGridSubsampleSameAsFit(t *testing.T) {
+	d := synthData(43, 3000, 3, 4, false, false)
+	opt := Options{SubsampleAbove: 1000}
+	models := gridModels()[:3]
+	want := make([]string, len(models))
+	for i, m := range models {
+		want[i] = dumpResult(Fit(d, m, opt))
+	}
+	FitGrid(d, models, opt, 2, func(i int, r *Result, err error) {
+		if got := dumpResult(r, err); got != want[i] {
+			t.Errorf("%s differs from its own fit:\ngrid %s\nfit  %s", models[i].Name(), got, want[i])
+		}
+	})
+}
+
 // TestFitGridBadData: data that fail the checks give every model Fit's
 // error.
 func TestFitGridBadData(t *testing.T) {

@@ -37,7 +37,9 @@ func auxModels(m Model) (par, partial Model) {
 
 func newAuxiliary(d *Data, m Model, ly *layout, opt Options, sh *shared) (*auxiliary, error) {
 	parM, partM := auxModels(m)
-	o := Options{MaxIter: opt.MaxIter, Workers: opt.Workers}
+	// The auxiliary fits keep the subsample threshold: a grid shares one
+	// subsample and hands its partial fit over as this one (FitGrid).
+	o := Options{MaxIter: opt.MaxIter, Workers: opt.Workers, SubsampleAbove: opt.SubsampleAbove}
 	a := &auxiliary{sd: predictorSD(d), partM: partM}
 	pLy, err := newLayout(partM, d.J, d.Predictors)
 	if err != nil {
