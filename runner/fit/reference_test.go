@@ -33,15 +33,46 @@ func TestReferenceUnconstrained(t *testing.T) {
 			rm := rm
 			t.Run(name+"/"+rm.ID, func(t *testing.T) {
 				t.Logf("data: %s", refSources[name])
-				checkUnconstrained(t, rs, &rm)
+				checkUnconstrained(t, rs, &rm, Options{})
 			})
 		}
 	}
 }
 
-func checkUnconstrained(t *testing.T, rs *refSet, rm *refModel) {
+// TestReferenceSubsampleStage reproduces the same records with the
+// subsample stage at any size (Options.SubsampleAbove 1): where the
+// subsample holds every category, the full-data iterations start at its
+// maximum, and the result must still be the reference's to the project's
+// tolerances. It fails if no record takes the stage. Sources: refSources.
+func TestReferenceSubsampleStage(t *testing.T) {
+	opt := Options{SubsampleAbove: 1}
+	staged := 0
+	for _, name := range refNames {
+		rs := loadRef(t, name)
+		for _, rm := range rs.models {
+			if len(rm.Constrained) > 0 {
+				continue
+			}
+			d := rs.data(rm.Predictors)
+			if d.design().compressed().subsample(d.J, opt.SubsampleAbove) != nil {
+				staged++
+			}
+			rm := rm
+			t.Run(name+"/"+rm.ID, func(t *testing.T) {
+				t.Logf("data: %s", refSources[name])
+				checkUnconstrained(t, rs, &rm, opt)
+			})
+		}
+	}
+	if staged == 0 {
+		t.Fatal("no reference record takes the subsample stage")
+	}
+	t.Logf("%d records take the subsample stage", staged)
+}
+
+func checkUnconstrained(t *testing.T, rs *refSet, rm *refModel, opt Options) {
 	m := rm.modelOf(t)
-	res, err := Fit(rs.data(rm.Predictors), m, Options{})
+	res, err := Fit(rs.data(rm.Predictors), m, opt)
 	if err != nil {
 		t.Fatal(err)
 	}
