@@ -572,6 +572,8 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`semipt.csv:2: column "a": value "0.5" has a point, but the decimal mark is a comma (data.decimal: comma)`}},
 		{id: "D22", name: "unknown delimiter word", args: fitArgs(d("semi.csv"), "--predictors", "a,b", "--delimiter", "pipe"), code: 2,
 			want: []string{`ordplan fit: --delimiter/--decimal: delimiter "pipe" is not one of comma, semicolon, tab`}},
+		{id: "D23", name: "ordplan fit on a file in another CSV dialect", args: fitArgs(d("semi.csv"), "--predictors", "a,b"), code: 1,
+			want: []string{`semi.csv: column "y": outcome column not found in the header; available columns: "y;a;b"; the file looks semicolon-separated with a decimal comma, but is read as comma-separated with a decimal point: set delimiter: semicolon and decimal: comma under data (ordplan fit: --delimiter semicolon --decimal comma)`}},
 		{id: "X1", name: "malformed .xlsx workbook", args: fitArgs(d("bad.xlsx"), "--predictors", "a,b"), code: 1,
 			want: []string{`bad.xlsx: is not a readable .xlsx workbook (`, `): open and save it again as .xlsx, or export the sheet as CSV`}},
 		{id: "X2", name: "CSV text named .xlsx", args: fitArgs(d("notzip.xlsx"), "--predictors", "a,b"), code: 1,

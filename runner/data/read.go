@@ -99,6 +99,7 @@ type reader struct {
 	cols    []usedCol
 	width   int
 	raw     []byte // the whole input, when read before (readBytes)
+	head    []byte // the first bytes of CSV text, for SuggestDialect
 }
 
 func (r *reader) fail(line int, column, format string, args ...any) *Error {
@@ -151,8 +152,14 @@ func (r *reader) header(cols []usedCol) error {
 	for i := range cols {
 		j, ok := where[cols[i].name]
 		if !ok {
-			return r.fail(0, cols[i].name, "%s column not found in the header; available columns: %s",
+			e := r.fail(0, cols[i].name, "%s column not found in the header; available columns: %s",
 				cols[i].role, quoteList(names))
+			// A header read whole as one name is most often a file in
+			// another dialect than the one asked for: say which.
+			if hint := SuggestDialect(r.head, r.opt.Dialect); r.head != nil && hint != "" {
+				e.Msg += "; " + hint
+			}
+			return e
 		}
 		cols[i].index = j
 	}
@@ -282,6 +289,7 @@ func (r *reader) start(in io.Reader) error {
 	if msg := checkUTF8(head); msg != "" {
 		return &Error{File: r.file, Msg: msg}
 	}
+	r.head = bytes.Clone(head)
 	if b, err := br.Peek(len(utf8BOM)); err == nil && bytes.Equal(b, utf8BOM) {
 		br.Discard(len(utf8BOM))
 	}
