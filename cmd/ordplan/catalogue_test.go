@@ -783,6 +783,10 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("the password is printed: %s", errs)
 				}
 			}},
+		{id: "Q5", name: "queue server unreachable", args: []string{"worker", "--queue", "nats://127.0.0.1:1"}, code: 1,
+			want: []string{"queue nats://127.0.0.1:1: cannot reach the queue server (nats: no servers available for connection): check that it runs at that address and that --queue names it"}},
+		{id: "Q6", name: "queue URL with a scheme the server does not speak", args: []string{"worker", "--queue", "http://127.0.0.1:1"}, code: 1,
+			want: []string{`queue http://127.0.0.1:1: "http" is not a scheme the queue server speaks: give nats://HOST:PORT (or tls://, ws://, wss://)`}},
 		{id: "Q3", name: "secret file too short", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-secret-file", d("short.key")}, code: 1,
 			want: []string{"short.key: 5 bytes; a shared secret needs at least 16"}},
 		{id: "Q4", name: "TLS certificate without its key", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-cert", d("d.csv")}, code: 1,

@@ -2,6 +2,7 @@ package queue
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io"
 	"time"
@@ -58,6 +59,9 @@ func Connect(ctx context.Context, cfg Config) (*Client, error) {
 		opts = append(opts, o)
 	}
 	nc, err := nats.Connect(cfg.URL, opts...)
+	if errors.Is(err, nats.ErrNoServers) {
+		return nil, fmt.Errorf("queue %s: cannot reach the queue server (%s): check that it runs at that address and that --queue names it", shown, scrub(err.Error(), cfg.URL))
+	}
 	if err != nil {
 		return nil, fmt.Errorf("queue %s: %s", shown, scrub(err.Error(), cfg.URL))
 	}

@@ -62,6 +62,18 @@ func (cfg Config) check() error {
 	if cfg.URL == "" {
 		return errors.New("no server URL")
 	}
+	for _, u := range strings.Split(cfg.URL, ",") {
+		u = strings.TrimSpace(u)
+		scheme, _, has := strings.Cut(u, "://")
+		if !has {
+			continue // HOST:PORT, read as nats://HOST:PORT
+		}
+		switch strings.ToLower(scheme) {
+		case "nats", "tls", "ws", "wss":
+		default:
+			return fmt.Errorf("%q is not a scheme the queue server speaks: give nats://HOST:PORT (or tls://, ws://, wss://)", scheme)
+		}
+	}
 	if len(cfg.Secret) < MinSecretBytes {
 		return fmt.Errorf("no shared secret (give a secret file of at least %d bytes to the coordinator and every worker)", MinSecretBytes)
 	}
