@@ -772,6 +772,17 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("predictions files: %v", m)
 				}
 			}},
+		{id: "O4", name: "user's own file in the output folder under an output's name", args: []string{"run"}, plan: goodPlan, code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				os.MkdirAll(filepath.Join(dir, "O4-out"), 0o755)
+				os.WriteFile(filepath.Join(dir, "O4-out", "report.md"), []byte("my notes\n"), 0o644)
+			},
+			want: []string{"O4-out: report.md is not as an earlier ordplan run there left it (your own file, or an output changed since); ordplan does not overwrite it: move it away, or give another --out"},
+			check: func(t *testing.T, dir, out, errs string) {
+				if b, _ := os.ReadFile(filepath.Join(dir, "O4-out", "report.md")); string(b) != "my notes\n" {
+					t.Errorf("the user's report.md was overwritten: %q", b)
+				}
+			}},
 
 		// The queue.
 		{id: "Q1", name: "queue without the shared secret", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-secret-file", ""}, code: 2,

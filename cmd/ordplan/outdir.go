@@ -145,6 +145,10 @@ func writeRun(r *runner.Result, dir string, files map[string][]byte) error {
 		all[n] = c
 	}
 	all["run.json"] = b
+	if mine := usersFiles(dir, files); len(mine) > 0 {
+		return fmt.Errorf("output folder %s: %s not as an earlier ordplan run there left it (your own file, or an output changed since); ordplan does not overwrite it: move it away, or give another --out",
+			dir, quoteNames(mine))
+	}
 	stale := staleOutputs(dir, all)
 	if err := writeAll(dir, append(names, "run.json"), all); err != nil {
 		return err
@@ -162,6 +166,33 @@ func writeRun(r *runner.Result, dir string, files map[string][]byte) error {
 // among files: plain file names of regular files (never a symlink) whose
 // content still has the SHA-256 the previous run.json recorded.
 func staleOutputs(dir string, files map[string][]byte) []string {
+	prev := previousOutputs(dir)
+	var out []string
+	for n := range prev {
+		if _, keep := files[n]; keep || n != filepath.Base(n) || strings.HasPrefix(n, ".") || n == "run.json" {
+			continue
+		}
+		fi, err := os.Lstat(filepath.Join(dir, n))
+		if err != nil || !fi.Mode().IsRegular() {
+			continue
+		}
+		// Only a file still as the previous run wrote it: one the user
+		// changed since is theirs and stays.
+		c, err := os.ReadFile(filepath.Join(dir, n))
+		if err != nil {
+			continue
+		}
+		if sha256Hex(c) == prev[n] {
+			out = append(out, n)
+		}
+	}
+	sort.Strings(out)
+	return out
+}
+
+// previousOutputs is the SHA-256 of each output the run.json in dir
+// records (nil when there is none to read).
+func previousOutputs(dir string) map[string]string {
 	path := filepath.Join(dir, "run.json")
 	fi, err := os.Lstat(path)
 	if err != nil || !fi.Mode().IsRegular() || fi.Size() > 64<<20 {
@@ -177,25 +208,46 @@ func staleOutputs(dir string, files map[string][]byte) []string {
 	if json.Unmarshal(b, &prev) != nil {
 		return nil
 	}
+	return prev.Outputs
+}
+
+// usersFiles lists the files in dir that a run would replace and that are
+// not as an earlier run left them (the run.json there records another
+// SHA-256, or none): the user's own files, or outputs they changed since.
+// A file with the very bytes the run writes is not among them.
+func usersFiles(dir string, files map[string][]byte) []string {
+	prev := previousOutputs(dir)
 	var out []string
-	for n := range prev.Outputs {
-		if _, keep := files[n]; keep || n != filepath.Base(n) || strings.HasPrefix(n, ".") || n == "run.json" {
+	for n, content := range files {
+		if n == "run.json" {
 			continue
 		}
 		fi, err := os.Lstat(filepath.Join(dir, n))
 		if err != nil || !fi.Mode().IsRegular() {
-			continue
+			continue // absent, or a symlink the rename replaces (not its target)
 		}
-		// Only a file still as the previous run wrote it: one the user
-		// changed since is theirs and stays.
 		c, err := os.ReadFile(filepath.Join(dir, n))
 		if err != nil {
+			out = append(out, n)
 			continue
 		}
-		if sum := sha256.Sum256(c); hex.EncodeToString(sum[:]) == prev.Outputs[n] {
+		if h := sha256Hex(c); h != prev[n] && h != sha256Hex(content) {
 			out = append(out, n)
 		}
 	}
 	sort.Strings(out)
 	return out
+}
+
+func sha256Hex(b []byte) string {
+	sum := sha256.Sum256(b)
+	return hex.EncodeToString(sum[:])
+}
+
+// quoteNames writes file names for a message: "a is", "a and b are".
+func quoteNames(names []string) string {
+	if len(names) == 1 {
+		return names[0] + " is"
+	}
+	return strings.Join(names[:len(names)-1], ", ") + " and " + names[len(names)-1] + " are"
 }

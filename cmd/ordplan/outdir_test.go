@@ -1,8 +1,6 @@
 package main
 
 import (
-	"crypto/sha256"
-	"encoding/hex"
 	"os"
 	"path/filepath"
 	"strings"
@@ -75,8 +73,8 @@ func TestStaleOutputsRemoved(t *testing.T) {
 	// old.csv is as the previous run wrote it (sha256 of "old"); edited.csv
 	// was changed by the user since, so it is theirs and stays.
 	os.WriteFile(filepath.Join(dir, "run.json"), []byte(`{"outputs_sha256": {"old.csv": "`+
-		sha256Hex("old")+
-		`", "edited.csv": "`+sha256Hex("as written")+`", "keep.md": "y", "../escape": "z"}}`), 0o644)
+		sha256Hex([]byte("old"))+
+		`", "edited.csv": "`+sha256Hex([]byte("as written"))+`", "keep.md": "y", "../escape": "z"}}`), 0o644)
 	os.WriteFile(filepath.Join(dir, "old.csv"), []byte("old"), 0o644)
 	os.WriteFile(filepath.Join(dir, "edited.csv"), []byte("changed by the user"), 0o644)
 	os.WriteFile(filepath.Join(dir, "mine.txt"), []byte("user"), 0o644)
@@ -85,9 +83,4 @@ func TestStaleOutputsRemoved(t *testing.T) {
 	if len(stale) != 1 || stale[0] != "old.csv" {
 		t.Fatalf("stale %v", stale)
 	}
-}
-
-func sha256Hex(s string) string {
-	sum := sha256.Sum256([]byte(s))
-	return hex.EncodeToString(sum[:])
 }
