@@ -86,6 +86,10 @@ func TestImputedReport(t *testing.T) {
 		"| Score (all predictors) (pooled, D2) |",
 		"On imputed data the curves and the table below are at the pooled estimates",
 		"every model was fitted on each complete imputed set",
+		// The limits name the assumption pooling rests on and the
+		// uncertainty of the selection the pooled tests leave out.
+		"Pooled standard errors and tests assume that the values are missing at random given the columns of the imputation models",
+		"they leave out the uncertainty of that selection, so intervals tend to be too narrow and p-values too small",
 		// The methods paragraph counts the rows of one set, not of the
 		// stacked file (960 rows, of which one set's 240 are read at a time).
 		"Each of the 4 imputed data sets held 240 rows, all used.",

@@ -132,7 +132,7 @@ func writeLimits(d *doc, r *runner.Result) {
 	rows := "Information criteria and tests compare models on the same rows; rows with a missing value were dropped before any model was fitted."
 	for _, or := range r.Outcomes {
 		if or.Imputed != nil {
-			rows = "Information criteria and tests compare models on the same rows: every model was fitted on each complete imputed set. Pooled standard errors and tests include the uncertainty due to the missing values only as far as the imputation model is right."
+			rows = "Information criteria and tests compare models on the same rows: every model was fitted on each complete imputed set. Pooled standard errors and tests assume that the values are missing at random given the columns of the imputation models, and include the uncertainty due to the missing values only as far as the imputation model is right."
 		}
 	}
 	d.h(2, "Assumptions and limits")
@@ -143,7 +143,8 @@ func writeLimits(d *doc, r *runner.Result) {
 		"Cumulative partial and nonparallel models can predict negative category probabilities for some covariate values (their cumulative probabilities cross). The number of rows of the data where this happens is shown for every model, and predictions on the grid of the focus predictor are checked too; predictions outside the observed covariate range are more exposed.",
 		"Constrained (common-factor) models can have several local maxima; ordplan fits them from several starting points and keeps the best.",
 		rows,
-		"Standard errors of predicted probabilities and marginal effects use the delta method: they are first-order approximations that treat the chosen model as fixed, not as the result of the selection made by the rules.",
+		"The chosen model's standard errors, p-values and intervals (of its estimates, predicted probabilities and marginal effects) treat it as fixed in advance, not as the result of the selection made by the rules, and of any stepwise choice of partial effects, on the same data: they leave out the uncertainty of that selection, so intervals tend to be too narrow and p-values too small.",
+		"Standard errors of predicted probabilities and marginal effects use the delta method: they are first-order approximations.",
 	})
 }
 
