@@ -59,16 +59,11 @@ func (d *decoder) checkParts(p *Plan) ([]string, bool) {
 		file := p.Data.PartFiles[i]
 		h, err := data.HeaderDialect(path, p.Data.Dialect())
 		if err != nil {
-			var de *data.Error
-			if errors.As(err, &de) && de.Line == 0 && strings.HasPrefix(de.Msg, "cannot open file") {
-				where := ""
-				if path != filepath.Clean(filepath.FromSlash(file)) {
-					where = " (looked for " + path + ")"
-				}
+			if where, reason, unopened := notOpened(err, path, file); unopened {
 				if strings.ContainsAny(file, "*?[") {
 					d.errAt("data.parts", "the pattern %s matches no file%s", strconv.Quote(file), where)
 				} else {
-					d.errAt("data.parts", "cannot open the part %s%s: %s", strconv.Quote(file), where, openReason(de.Err))
+					d.errAt("data.parts", "cannot open the part %s%s: %s", strconv.Quote(file), where, reason)
 				}
 				ok = false
 			}
@@ -76,12 +71,7 @@ func (d *decoder) checkParts(p *Plan) ([]string, bool) {
 		}
 		if i == 0 {
 			first = h
-			if msg := suggestDialect(path, p.Data.Dialect()); msg != "" {
-				key := "data.delimiter"
-				if !strings.Contains(msg, "delimiter: ") {
-					key = "data.decimal"
-				}
-				d.errAt(key, "data part %s: %s", file, msg)
+			if d.reportDialect(path, "data part "+file, p.Data.Dialect()) {
 				ok = false
 			}
 		} else if first != nil {
@@ -94,17 +84,42 @@ func (d *decoder) checkParts(p *Plan) ([]string, bool) {
 	return first, ok && first != nil
 }
 
-// suggestDialect is what check suggests for a CSV file read in the
-// dialect d ("" for a workbook, a Parquet file, or nothing to suggest).
-func suggestDialect(path string, dl data.Dialect) string {
+// reportDialect reports, at data.delimiter or data.decimal, a CSV file
+// (named in what) that looks written in another dialect than dl, with
+// what check suggests; it says whether it did (never for a workbook, a
+// Parquet file, or a file it cannot read).
+func (d *decoder) reportDialect(path, what string, dl data.Dialect) bool {
 	if data.IsWorkbook(path) || data.IsParquet(path) {
-		return ""
+		return false
 	}
 	raw, err := data.ReadFile(path)
 	if err != nil {
-		return ""
+		return false
 	}
-	return data.SuggestDialect(raw, dl)
+	msg := data.SuggestDialect(raw, dl)
+	if msg == "" {
+		return false
+	}
+	key := "data.delimiter"
+	if !strings.Contains(msg, "delimiter: ") {
+		key = "data.decimal"
+	}
+	d.errAt(key, "%s: %s", what, msg)
+	return true
+}
+
+// notOpened says whether err is the reader's failure to open the file
+// (named file in the plan, looked for at path), with where it looked
+// when that differs from the name (" (looked for PATH)") and why.
+func notOpened(err error, path, file string) (where, reason string, ok bool) {
+	var de *data.Error
+	if !errors.As(err, &de) || de.Line != 0 || !strings.HasPrefix(de.Msg, "cannot open file") {
+		return "", "", false
+	}
+	if path != filepath.Clean(filepath.FromSlash(file)) {
+		where = " (looked for " + path + ")"
+	}
+	return where, openReason(de.Err), true
 }
 
 // dataHeader reads the header of data.file, reporting a file that cannot
@@ -114,27 +129,13 @@ func (d *decoder) dataHeader(p *Plan) ([]string, bool) {
 		return nil, false
 	}
 	header, err := data.HeaderDialect(p.Data.Path, p.Data.Dialect())
-	if err == nil && !data.IsWorkbook(p.Data.Path) && !data.IsParquet(p.Data.Path) {
-		if raw, rerr := data.ReadFile(p.Data.Path); rerr == nil {
-			if msg := data.SuggestDialect(raw, p.Data.Dialect()); msg != "" {
-				key := "data.delimiter"
-				if !strings.Contains(msg, "delimiter: ") {
-					key = "data.decimal"
-				}
-				d.errAt(key, "data file %s: %s", p.Data.File, msg)
-				return nil, false
-			}
-		}
-	}
 	if err != nil {
-		var de *data.Error
-		if errors.As(err, &de) && de.Line == 0 && strings.HasPrefix(de.Msg, "cannot open file") {
-			where := ""
-			if p.Data.Path != filepath.Clean(filepath.FromSlash(p.Data.File)) {
-				where = " (looked for " + p.Data.Path + ")"
-			}
-			d.errAt("data.file", "cannot open the data file %s%s: %s", strconv.Quote(p.Data.File), where, openReason(de.Err))
+		if where, reason, unopened := notOpened(err, p.Data.Path, p.Data.File); unopened {
+			d.errAt("data.file", "cannot open the data file %s%s: %s", strconv.Quote(p.Data.File), where, reason)
 		}
+		return nil, false
+	}
+	if d.reportDialect(p.Data.Path, "data file "+p.Data.File, p.Data.Dialect()) {
 		return nil, false
 	}
 	return header, true

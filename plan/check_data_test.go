@@ -23,6 +23,7 @@ func TestLoadChecksColumnsAgainstData(t *testing.T) {
 	write("d.csv", "\uFEFFy, a ,b,w,off,grp\n1,2,3,1,0,g\n")
 	write("empty.csv", "")
 	write("dup.csv", "y,a,a\n1,2,3\n")
+	write("semi.csv", "y;a;b;w;off;grp\n1;2,5;3,25;1;0;g\n2;1,5;4,75;1;0;h\n")
 	good := `version: 1
 data:
   file: d.csv
@@ -56,6 +57,11 @@ rules:
 			[]string{`outcomes[0].column: column "yy"`, `predictors: key is given twice`, `x: unknown key`}},
 		{"missing data file", "file: d.csv", "file: sub/none.csv",
 			[]string{`p.yaml:3:9: data.file: cannot open the data file "sub/none.csv" (looked for ` + filepath.Join(dir, "sub", "none.csv") + `): no such file or directory`}},
+		// The checks of data.file, made part by part for data.parts.
+		{"missing part", "file: d.csv", "parts: [d.csv, sub/none.csv]",
+			[]string{`p.yaml:3:10: data.parts: cannot open the part "sub/none.csv" (looked for ` + filepath.Join(dir, "sub", "none.csv") + `): no such file or directory`}},
+		{"part in another dialect", "file: d.csv", "parts: [semi.csv]",
+			[]string{`data.delimiter: data part semi.csv: the file looks semicolon-separated with a decimal comma`}},
 		// Problems inside the data file are the data reader's: they are
 		// reported when the data are read, with the file's line numbers.
 		{"empty data file", "file: d.csv", "file: empty.csv", nil},
