@@ -58,7 +58,7 @@ func TestReferenceConstrained(t *testing.T) {
 					if !near(res.Estimates[i], want, 1e-5, 1e-7) {
 						t.Errorf("%s = %.10g, want %.10g", n, res.Estimates[i], want)
 					}
-					if se := rm.SEOIM[n]; !near(res.StdErrors[i], se, 1e-4, 1e-8) {
+					if se := rm.SEOIM[n]; !near(res.StdErrors[i], se, 1e-5, 1e-7) {
 						t.Errorf("se_oim(%s) = %.10g, want %.10g", n, res.StdErrors[i], se)
 					}
 				}
