@@ -67,16 +67,24 @@ func runFitStats(a *Analysis, or *OutcomeResult) {
 			nulls[key] = nr
 			or.Nulls = append(or.Nulls, nr)
 		}
-		o := fit.OverallFit(or.FitData, f.Result, nr.Result)
-		if prob && o.LR.OK {
-			o.LR = fit.Test{Name: o.LR.Name, Reason: likelihoodNote}
-		}
+		o := overallFit(or.FitData, f.Result, nr.Result, prob)
 		or.Overall = append(or.Overall, OverallRecord{Model: f.ID, Null: key, Overall: o})
 	}
 	if or.Chosen == nil || !or.Chosen.OK() {
 		return
 	}
 	or.Lipsitz, or.PatternSplit = goodnessOfFit(&Loaded{Data: or.Data, Design: or.Design, FitData: or.FitData}, or.Chosen.Result, fopt, prob)
+}
+
+// overallFit compares fit r with its thresholds-only fit null on data d
+// (fit.OverallFit); under sampling weights the likelihood-ratio statistic
+// is not a test and says so.
+func overallFit(d *fit.Data, r, null *fit.Result, sampling bool) fit.Overall {
+	o := fit.OverallFit(d, r, null)
+	if sampling && o.LR.OK {
+		o.LR = fit.Test{Name: o.LR.Name, Reason: likelihoodNote}
+	}
+	return o
 }
 
 // goodnessOfFit runs the Lipsitz test of fit r on its data, with its

@@ -62,10 +62,7 @@ func FitOneChecked(s SingleFit) (*fit.Result, *data.Dataset, *SingleChecks, erro
 		return res, ld.Data, nil, err
 	}
 	null, _ := fit.FitNull(ld.FitData, res.Model, a.Fit)
-	o := fit.OverallFit(ld.FitData, res, null)
-	if a.Errors.Sampling && o.LR.OK {
-		o.LR = fit.Test{Name: o.LR.Name, Reason: likelihoodNote}
-	}
+	o := overallFit(ld.FitData, res, null, a.Errors.Sampling)
 	c := &SingleChecks{Overall: OverallRecord{Model: res.Name, Null: fit.ModelID(res.Model.ComparisonName(), "thresholds-only", res.Model.Link), Overall: o}}
 	c.Lipsitz, c.PatternSplit = goodnessOfFit(ld, res, a.Fit, a.Errors.Sampling)
 	return res, ld.Data, c, nil
