@@ -92,7 +92,7 @@ func TestValidateInChunks(t *testing.T) {
 		{Column: "a", Key: "dictionary.a", Numeric: true, Range: []float64{0, 1}, Missing: []string{"-9"}},
 		{Column: "b", Key: "dictionary.b", Numeric: true, Values: []string{"1", "2"}, Missing: []string{"-9"}},
 	}
-	check := func(body string) {
+	check := func(body string) string {
 		t.Helper()
 		path := writeTemp(t, "v.csv", body)
 		var want string
@@ -107,8 +107,30 @@ func TestValidateInChunks(t *testing.T) {
 				}
 			})
 		}
+		return want
 	}
-	check(b.String())
-	check(b.String() + "0.1,1\n0.2,1,2\n")                // a short line: the first unreadable line wins
-	check(b.String() + "0.1,1,\"spans\nlines\"\n3,3,3\n") // read record by record
+	chunked := check(b.String())
+	check(b.String() + "0.1,1\n0.2,1,2\n") // a short line: the first unreadable line wins
+	// Read record by record (a quoted field spans lines, so no chunks):
+	// the same first problems as the chunked read of the same lines, and
+	// the total with the 2 of the last line (a above its range, b not
+	// among its values).
+	byRecord := check(b.String() + "0.1,1,\"spans\nlines\"\n3,3,3\n")
+	cut := func(s string) (string, int) {
+		i := strings.LastIndex(s, "\n")
+		var n int
+		fmt.Sscanf(s[strings.LastIndex(s, " ... ")+5:], "%d", &n)
+		// Each check writes its file in a folder of its own: compare
+		// from the file's name on.
+		var lines []string
+		for _, l := range strings.Split(s[:i], "\n") {
+			lines = append(lines, l[strings.Index(l, "v.csv"):])
+		}
+		return strings.Join(lines, "\n"), n
+	}
+	hc, nc := cut(chunked)
+	hr, nr := cut(byRecord)
+	if hc != hr || nr != nc+2 {
+		t.Errorf("record by record:\n%s\nwant the chunked read's first problems\n%s\nand %d problems in all", byRecord, chunked, nc+2)
+	}
 }
