@@ -251,6 +251,14 @@ func (f *fitFlags) usageProblem(fs *flag.FlagSet) string {
 	if *f.headerRow < 1 {
 		return fmt.Sprintf("--header-row must be a sheet row number, 1 or more (got %d)", *f.headerRow)
 	}
+	switch parts, url := splitList(*f.partitions), *f.queue.url; {
+	case len(parts) > 0 && *f.dataFile != "":
+		return "give --data (one file) or --partitions (the data as several files, fitted by queue workers), not both"
+	case len(parts) > 0 && url == "":
+		return "--partitions needs --queue nats://HOST:PORT (queue workers fit the partitions)"
+	case url != "" && len(parts) == 0:
+		return "--queue needs --partitions a.csv,b.csv,... (the files the workers sum the fit over)"
+	}
 	if (*f.sheet != "" || *f.headerRow != 1) && !f.workbooks() {
 		return "--sheet and --header-row are for .xlsx workbooks; the data file is not named *.xlsx"
 	}

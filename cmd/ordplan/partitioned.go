@@ -1,7 +1,6 @@
 package main
 
 import (
-	"errors"
 	"fmt"
 	"io"
 
@@ -14,13 +13,6 @@ import (
 // workers: each Newton evaluation is summed over the partitions.
 func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, stderr io.Writer) int {
 	qf := f.queue
-	url := *qf.url
-	switch {
-	case url == "":
-		return fail(stderr, errors.New("--partitions needs --queue nats://HOST:PORT"))
-	case len(parts) == 0:
-		return fail(stderr, errors.New("--queue with ordplan fit needs --partitions a.csv,b.csv,..."))
-	}
 	a, err := runner.ResolveFit(s)
 	if err != nil {
 		return fail(stderr, err)
