@@ -33,6 +33,9 @@ type ImputedRun struct {
 	Chained *ChainedRecord `json:"-"`
 	// brant is the Brant construction of every set, made once.
 	brant *pooledBrant
+	// obs is the number of observations of the complete-data degrees of
+	// freedom (completeObs).
+	obs float64
 	// sources say how a job reads each set elsewhere, and design is the
 	// design frozen on set 1 (nil when trivial), which the jobs carry.
 	sources []setSource
@@ -251,7 +254,7 @@ func poolJobs(a *Analysis, sets []*data.Dataset, jobs []*FitEntry, run *ImputedR
 		for k := range perSet {
 			rs[k] = perSet[k][i].Result
 		}
-		r, pl, err := poolResults(rs)
+		r, pl, err := poolResults(rs, run.obs)
 		if err != nil {
 			e.Err = err.Error()
 			continue
@@ -290,13 +293,13 @@ func (run *ImputedRun) remote(ex Executor, grids []gridPart, outcome string) err
 // the estimates and covariance by Rubin's rules, the log-likelihood, AIC
 // and BIC as means over the sets, and the derived tables (cutpoints,
 // effects, phi) as means too. The rest is set 1's.
-func poolResults(rs []*fit.Result) (*fit.Result, *impute.Pooled, error) {
+func poolResults(rs []*fit.Result, obs float64) (*fit.Result, *impute.Pooled, error) {
 	sets := make([]impute.Set, len(rs))
 	for k, r := range rs {
 		sets[k] = impute.Set{Est: r.Estimates, Cov: r.Cov}
 	}
 	first := rs[0]
-	pl, err := impute.Pool(sets, completeDF(first.NObs, first.NParams))
+	pl, err := impute.Pool(sets, completeDF(obs, first.NParams))
 	if err != nil {
 		return nil, nil, err
 	}
@@ -523,6 +526,7 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 	if !dz.Trivial() {
 		run.design = dz.Freeze(r.Design)
 	}
+	run.obs = completeObs(run.Sets[0], an.Errors.Sampling)
 	ds := *sets[0]
 	if !an.Imputes() {
 		// The original file: its missing values are described in the report.

@@ -537,3 +537,80 @@ rules:
 		}
 	}
 }
+
+// TestImputedSamplingWeightsScale: sampling weights count no units, so
+// scaling them all by one constant changes nothing the run reports; in
+// particular the complete-data degrees of freedom of the Barnard-Rubin
+// adjustment count the rows, not the sum of the weights (with weights of
+// 0.05 that sum is 15 for 300 rows: 11 complete-data degrees of freedom
+// instead of 296).
+func TestImputedSamplingWeightsScale(t *testing.T) {
+	dir := imputedFixture(t, 5, false)
+	raw, err := os.ReadFile(filepath.Join(dir, "stacked.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSuffix(string(raw), "\n"), "\n")
+	run := func(w string) *OutcomeResult {
+		var b strings.Builder
+		for i, l := range lines {
+			if i == 0 {
+				b.WriteString(l + ",w\n")
+			} else {
+				b.WriteString(l + "," + w + "\n")
+			}
+		}
+		name := "stacked-" + w + ".csv"
+		if err := os.WriteFile(filepath.Join(dir, name), []byte(b.String()), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		src := `version: 1
+title: imputed, sampling weights
+data: {file: orig.csv, imputed: {file: ` + name + `, column: imp}, weights: w, weight_kind: sampling}
+outcomes: [{column: y}]
+predictors: [x1, x2]
+models: {approaches: [cumulative], effects: [parallel, nonparallel]}
+tests: {parallel_lines: [wald]}
+rules:
+  - reject_if_test_rejects: {test: wald}
+  - choose: {by: tic}
+`
+		// orig.csv needs the weight column too.
+		orig, err := os.ReadFile(filepath.Join(dir, "orig.csv"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		var o strings.Builder
+		for i, l := range strings.Split(strings.TrimSuffix(string(orig), "\n"), "\n") {
+			if i == 0 {
+				o.WriteString(l + ",w\n")
+			} else {
+				o.WriteString(l + "," + w + "\n")
+			}
+		}
+		if err := os.WriteFile(filepath.Join(dir, "orig.csv"), []byte(o.String()), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		p, err := plan.Load(filepath.Join(dir, "p.yaml"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		// Restore orig.csv for the next run.
+		defer os.WriteFile(filepath.Join(dir, "orig.csv"), orig, 0o644)
+		return runPlan(t, p, 0).Outcomes[0]
+	}
+	one, small := run("1"), run("0.05")
+	f1, f2 := one.Find("cumulative/parallel/logit"), small.Find("cumulative/parallel/logit")
+	if f1 == nil || f2 == nil || f1.Pooled == nil || f2.Pooled == nil {
+		t.Fatalf("no pooled fits: %+v %+v", f1, f2)
+	}
+	for j := range f1.Pooled.DF {
+		a, b := f1.Pooled.DF[j], f2.Pooled.DF[j]
+		if math.IsInf(a, 0) || math.Abs(a-b) > 1e-6*a {
+			t.Errorf("parameter %d: Barnard-Rubin df %g with weights 1, %g with weights 0.05", j, a, b)
+		}
+	}
+}

@@ -22,6 +22,17 @@ type PredictionDF struct {
 	Prob, Cum, Expected, Linear []float64
 }
 
+// completeObs is the number of observations in one imputed set d for the
+// complete-data degrees of freedom: the frequency-weighted count, or the
+// rows with sampling weights, which count no units (their scale is
+// arbitrary), as the minimum-information rule counts them.
+func completeObs(d *fit.Data, sampling bool) float64 {
+	if sampling {
+		return float64(d.N())
+	}
+	return d.NObs()
+}
+
 // completeDF is the complete-data degrees of freedom of Rubin's rules:
 // nobs observations less params parameters (+Inf when that is not
 // positive).
@@ -67,7 +78,7 @@ func runPooledInference(an *Analysis, or *OutcomeResult) error {
 	fits, ferr := or.chosenPerSet()
 	var dfc float64
 	if ferr == nil {
-		dfc = completeDF(fits[0].NObs, fits[0].NParams)
+		dfc = completeDF(or.Imputed.obs, fits[0].NParams)
 	}
 	for _, kind := range inf.MarginalEffects {
 		if ferr != nil {

@@ -93,7 +93,7 @@ func newPooledBrant(or *OutcomeResult, fopt fit.Options) *pooledBrant {
 	}
 	// The binary logits' parameters: J-1 intercepts and slopes.
 	d := or.Imputed.Sets[0]
-	pb.dfc = completeDF(d.NObs(), (d.J-1)*(len(d.Predictors)+1))
+	pb.dfc = completeDF(or.Imputed.obs, (d.J-1)*(len(d.Predictors)+1))
 	return pb
 }
 
