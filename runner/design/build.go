@@ -152,56 +152,55 @@ func build(spec Spec, raw []float64, n int, w []float64, lines []int, fz *Frozen
 }
 
 // sourceScales sets scale[s] to the sample SD of each numeric source with
-// n > 1 rows (meanSD of its column, the same sums in the same order) and
-// to 1 otherwise, in two passes over the rows of raw (n x len(srcs)).
+// n > 1 rows and to 1 otherwise; the SDs are columnMeanSDs' of raw
+// (n x len(srcs)), the same path meanSD takes for one column.
 func sourceScales(scale []float64, srcs []Source, raw []float64, n int, w []float64) {
-	S := len(srcs)
-	tot := 0.0
-	sum, ss := make([]float64, S), make([]float64, S)
-	for i := 0; i < n; i++ {
-		wi := weight(w, i)
-		tot += wi
-		for s, x := range raw[i*S : (i+1)*S] {
-			sum[s] += wi * x
-		}
-	}
-	for s := range sum {
-		sum[s] /= tot // the mean
-	}
-	for i := 0; i < n; i++ {
-		wi := weight(w, i)
-		for s, x := range raw[i*S : (i+1)*S] {
-			ss[s] += wi * (x - sum[s]) * (x - sum[s])
-		}
-	}
+	_, sd := columnMeanSDs(raw, len(srcs), n, w)
 	for s, src := range srcs {
 		scale[s] = 1
-		if src.Cat == nil && n > 1 && tot > 1 {
-			if sd := math.Sqrt(ss[s] / (tot - 1)); sd > 0 {
-				scale[s] = sd
-			}
+		if src.Cat == nil && n > 1 && sd[s] > 0 {
+			scale[s] = sd[s]
 		}
 	}
 }
 
 // meanSD is the weighted mean and standard deviation (divisor: sum of
-// weights minus 1, the sample SD of the rows the weights stand for).
+// weights minus 1, the sample SD of the rows the weights stand for) of one
+// column: columnMeanSDs with one column.
 func meanSD(v, w []float64) (float64, float64) {
-	tot, s := 0.0, 0.0
-	for i, x := range v {
+	m, sd := columnMeanSDs(v, 1, len(v), w)
+	return m[0], sd[0]
+}
+
+// columnMeanSDs is the weighted mean and standard deviation (divisor: sum
+// of weights minus 1; 0 when the weights sum to 1 or less) of each of the S
+// columns of raw, n rows stored row after row, in two passes over the rows.
+func columnMeanSDs(raw []float64, S, n int, w []float64) (mean, sd []float64) {
+	tot := 0.0
+	mean, sd = make([]float64, S), make([]float64, S)
+	for i := 0; i < n; i++ {
 		wi := weight(w, i)
 		tot += wi
-		s += wi * x
+		for s, x := range raw[i*S : (i+1)*S] {
+			mean[s] += wi * x
+		}
 	}
-	m := s / tot
-	ss := 0.0
-	for i, x := range v {
-		ss += weight(w, i) * (x - m) * (x - m)
+	for s := range mean {
+		mean[s] /= tot
 	}
-	if tot <= 1 {
-		return m, 0
+	for i := 0; i < n; i++ {
+		wi := weight(w, i)
+		for s, x := range raw[i*S : (i+1)*S] {
+			sd[s] += wi * (x - mean[s]) * (x - mean[s]) // the sum of squares until below
+		}
 	}
-	return m, math.Sqrt(ss / (tot - 1))
+	for s, ss := range sd {
+		sd[s] = 0
+		if tot > 1 {
+			sd[s] = math.Sqrt(ss / (tot - 1))
+		}
+	}
+	return mean, sd
 }
 
 func weight(w []float64, i int) float64 {

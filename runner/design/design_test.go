@@ -277,3 +277,43 @@ func TestWeightedQuantile(t *testing.T) {
 		t.Errorf("median of 1..4 = %g, want 2.5", q)
 	}
 }
+
+// The scales of the numeric sources are the SDs meanSD gives each column on
+// its own (one path, bit for bit), 1 for a categorical or constant column;
+// frequency weights give the SD of the rows repeated. Value: the sample SD
+// of 2, 4, 4, 4, 5, 5, 7, 9 is sqrt(32/7) (sum of squares 32 around the
+// mean 5, divisor n-1).
+func TestSourceScalesAreMeanSD(t *testing.T) {
+	srcs := []Source{{Name: "a"}, {Name: "b"}, {Name: "c", Cat: &Categorical{}}, {Name: "d"}}
+	cols := [][]float64{{2, 4, 5, 7, 9}, {1.5, -3, 0.25, 8, 2}, {0, 1, 0, 1, 1}, {3, 3, 3, 3, 3}}
+	w := []float64{1, 3, 2, 1, 1}
+	n, S := len(w), len(srcs)
+	raw := make([]float64, n*S)
+	for s, c := range cols {
+		for i, x := range c {
+			raw[i*S+s] = x
+		}
+	}
+	scale := make([]float64, S)
+	sourceScales(scale, srcs, raw, n, w)
+	for s, c := range cols {
+		_, sd := meanSD(c, w)
+		want := sd
+		if srcs[s].Cat != nil || sd == 0 {
+			want = 1
+		}
+		if scale[s] != want {
+			t.Errorf("source %s: scale %v, meanSD %v", srcs[s].Name, scale[s], want)
+		}
+	}
+	if want := math.Sqrt(32.0 / 7); math.Abs(scale[0]-want) > 1e-14 {
+		t.Errorf("weighted SD of 2,4x3,5x2,7,9 = %.17g, want sqrt(32/7) = %.17g", scale[0], want)
+	}
+	one := make([]float64, S)
+	sourceScales(one, srcs, raw[:S], 1, nil)
+	for s, v := range one {
+		if v != 1 {
+			t.Errorf("one row: scale of %s is %v, want 1", srcs[s].Name, v)
+		}
+	}
+}
