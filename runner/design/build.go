@@ -109,7 +109,7 @@ func build(spec Spec, raw []float64, n int, w []float64, lines []int, fz *Frozen
 	}
 	index := map[string]int{}
 	for k, ts := range spec.Terms {
-		var ft *FrozenTerm
+		var ft *TermRecord
 		if fz != nil {
 			ft = &fz.Terms[k]
 		}
@@ -224,7 +224,7 @@ func LevelName(level string) string {
 	return b.String()
 }
 
-func (d *Design) buildCategorical(t *Term, src Source, v, w []float64, fz *FrozenTerm) error {
+func (d *Design) buildCategorical(t *Term, src Source, v, w []float64, fz *TermRecord) error {
 	c := src.Cat
 	t.Kind = KindCategorical
 	L := len(c.Levels)
@@ -234,7 +234,7 @@ func (d *Design) buildCategorical(t *Term, src Source, v, w []float64, fz *Froze
 	}
 	if fz != nil { // the levels kept where the design was built
 		for l, name := range c.Levels {
-			if slices.Contains(fz.Kept, name) {
+			if slices.Contains(fz.Levels, name) {
 				count[l] = 1
 			}
 		}

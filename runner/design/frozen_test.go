@@ -6,6 +6,8 @@ import (
 	"encoding/json"
 	"math/rand/v2"
 	"reflect"
+	"regexp"
+	"slices"
 	"testing"
 )
 
@@ -50,6 +52,9 @@ func TestFrozenDesignRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	if bad := notSnakeCase(t, js); len(bad) > 0 {
+		t.Errorf("frozen design JSON keys not in snake_case: %v\n%s", bad, js)
+	}
 	var viaJSON Frozen
 	if err := json.Unmarshal(js, &viaJSON); err != nil {
 		t.Fatal(err)
@@ -83,4 +88,36 @@ func TestFrozenDesignRoundTrip(t *testing.T) {
 	if len(d.Notes) == 0 {
 		t.Error("the dropped level left no note")
 	}
+}
+
+// notSnakeCase lists the object keys of the JSON document js that are not
+// lower-case words joined by '_' (the convention of every JSON the program
+// writes), sorted.
+func notSnakeCase(t *testing.T, js []byte) []string {
+	t.Helper()
+	var v any
+	if err := json.Unmarshal(js, &v); err != nil {
+		t.Fatal(err)
+	}
+	snake := regexp.MustCompile(`^[a-z][a-z0-9]*(_[a-z0-9]+)*$`)
+	var bad []string
+	var walk func(any)
+	walk = func(v any) {
+		switch x := v.(type) {
+		case map[string]any:
+			for k, e := range x {
+				if !snake.MatchString(k) {
+					bad = append(bad, k)
+				}
+				walk(e)
+			}
+		case []any:
+			for _, e := range x {
+				walk(e)
+			}
+		}
+	}
+	walk(v)
+	slices.Sort(bad)
+	return slices.Compact(bad)
 }

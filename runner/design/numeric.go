@@ -9,7 +9,7 @@ import (
 )
 
 // buildNumeric freezes the constants of a numeric term from the sample.
-func (d *Design) buildNumeric(t *Term, column string, v, w []float64, lines []int, fz *FrozenTerm) error {
+func (d *Design) buildNumeric(t *Term, column string, v, w []float64, lines []int, fz *TermRecord) error {
 	t.Kind = KindNumeric
 	tr := t.Transform
 	if fz != nil {

@@ -4,7 +4,9 @@ import "math"
 
 // TermRecord is one term in decisions.json: its columns and every
 // constant frozen from the data, so that new rows are transformed the
-// same way.
+// same way. It is also the frozen form of a term a queue job carries
+// (Frozen, thaw): every constant Build takes from the sample is written
+// here and only here.
 type TermRecord struct {
 	Term      string    `json:"term"`
 	Kind      string    `json:"kind"`

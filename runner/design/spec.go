@@ -15,34 +15,34 @@ const (
 
 // Categorical declares a categorical column.
 type Categorical struct {
-	Levels     []string // as written in the plan, in order
-	Reference  string   // default: the first level
-	Coding     string   // Treatment (default), Sum or Successive
-	Ordered    bool     // the levels are ordered as listed
-	Unobserved string   // UnobservedRefuse (default) or UnobservedDrop
+	Levels     []string `json:"levels"`               // as written in the plan, in order
+	Reference  string   `json:"reference,omitempty"`  // default: the first level
+	Coding     string   `json:"coding,omitempty"`     // Treatment (default), Sum or Successive
+	Ordered    bool     `json:"ordered,omitempty"`    // the levels are ordered as listed
+	Unobserved string   `json:"unobserved,omitempty"` // UnobservedRefuse (default) or UnobservedDrop
 }
 
 // Source is one raw column a design reads.
 type Source struct {
-	Name string
-	Cat  *Categorical // nil: numeric
+	Name string       `json:"name"`
+	Cat  *Categorical `json:"categorical,omitempty"` // nil: numeric
 }
 
 // Transform is the chain applied to a numeric column, in this order:
 // log or sqrt, centring, scaling, then a polynomial or spline basis.
 type Transform struct {
-	Log      bool
-	Shift    float64 // log(v + Shift)
-	Sqrt     bool
-	Centre   string  // "" (none), "mean" or "value"
-	CentreAt float64 // Centre == "value"
-	Scale    bool    // divide by the sample standard deviation
-	Poly     int     // degree; 0 = none
-	PolyRaw  bool    // raw powers instead of orthogonal polynomials
+	Log      bool    `json:"log,omitempty"`
+	Shift    float64 `json:"shift,omitempty"` // log(v + Shift)
+	Sqrt     bool    `json:"sqrt,omitempty"`
+	Centre   string  `json:"centre,omitempty"`            // "" (none), "mean" or "value"
+	CentreAt float64 `json:"centre_at,omitempty"`         // Centre == "value"
+	Scale    bool    `json:"scale,omitempty"`             // divide by the sample standard deviation
+	Poly     int     `json:"polynomial_degree,omitempty"` // 0 = none
+	PolyRaw  bool    `json:"polynomial_raw,omitempty"`    // raw powers instead of orthogonal polynomials
 	// Natural cubic spline: knots at stated values, or at stated
 	// quantiles (probabilities) of the transformed sample.
-	Knots     []float64
-	Quantiles []float64
+	Knots     []float64 `json:"spline_knots,omitempty"`
+	Quantiles []float64 `json:"spline_knot_quantiles,omitempty"`
 }
 
 // Empty reports whether t changes nothing.
@@ -55,16 +55,16 @@ func (t Transform) Spline() bool { return t.Knots != nil || t.Quantiles != nil }
 
 // TermSpec is one term as the plan states it.
 type TermSpec struct {
-	Name      string   // term name (column names derive from it)
-	Source    string   // raw column, for a single-column term
+	Name      string   `json:"name"`             // term name (column names derive from it)
+	Source    string   `json:"source,omitempty"` // raw column, for a single-column term
 	Transform          // numeric terms only
-	Interact  []string // names of earlier terms, for an interaction
-	Key       string   // plan key path, for messages
+	Interact  []string `json:"interact,omitempty"` // names of earlier terms, for an interaction
+	Key       string   `json:"plan_key,omitempty"` // plan key path, for messages
 }
 
 // Spec is the plan's description of a design: the raw columns it reads
 // and its terms, in order.
 type Spec struct {
-	Sources []Source
-	Terms   []TermSpec
+	Sources []Source   `json:"sources"`
+	Terms   []TermSpec `json:"terms"`
 }
