@@ -124,6 +124,16 @@ type partError struct{ err *Error }
 
 func (e *partError) Error() string { return e.err.Error() }
 
+// inPart makes err, when it is (or wraps) an *Error, a problem with the
+// part as a whole; any other error is returned as it is.
+func inPart(err error) error {
+	var de *Error
+	if errors.As(err, &de) {
+		return &partError{de}
+	}
+	return err
+}
+
 // open starts part k: its reader, its header, the order of its columns.
 func (p *partRecords) open(k int) error {
 	path := p.paths[k]
@@ -134,27 +144,18 @@ func (p *partRecords) open(k int) error {
 	}
 	raw, err := ReadFile(path)
 	if err != nil {
-		var de *Error
-		if errors.As(err, &de) {
-			return &partError{de}
+		if !errors.As(err, new(*Error)) {
+			err = &Error{File: path, Msg: err.Error(), Err: err}
 		}
-		return &partError{&Error{File: path, Msg: err.Error(), Err: err}}
+		return inPart(err)
 	}
 	sub := &reader{file: path, opt: Options{Dialect: p.dialect}}
 	if err := sub.start(bytes.NewReader(raw)); err != nil {
-		var de *Error
-		if errors.As(err, &de) {
-			return &partError{de}
-		}
-		return err
+		return inPart(err)
 	}
 	names, where, err := sub.names()
 	if err != nil {
-		var de *Error
-		if errors.As(err, &de) {
-			return &partError{de}
-		}
-		return err
+		return inPart(err)
 	}
 	offset := 0
 	if n := len(p.spans); n > 0 {

@@ -1,6 +1,8 @@
 package data
 
 import (
+	"errors"
+	"fmt"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -59,8 +61,9 @@ func TestPartsReadAsOne(t *testing.T) {
 }
 
 // Bad parts are refused naming the part: a missing file, other columns,
-// a part listed twice, a part without rows, and a bad cell in a later part
-// at that part's own line.
+// a part listed twice, a part without rows, a bad cell in a later part at
+// that part's own line, an empty later part and one whose header names a
+// column twice (at its own line 1).
 func TestPartsBadInput(t *testing.T) {
 	dir := t.TempDir()
 	write := func(name, text string) string {
@@ -72,6 +75,8 @@ func TestPartsBadInput(t *testing.T) {
 	other := write("other.csv", "y,z\n1,0.5\n")
 	empty := write("empty.csv", "y,a\n")
 	bad := write("bad.csv", "y,a\n1,0.5\n2,high\n")
+	zero := write("zero.csv", "")
+	twice := write("twice.csv", "y,a,a\n1,0.5,2\n")
 	opt := Options{Outcome: "y", Predictors: []string{"a"}}
 	for _, c := range []struct {
 		parts []string
@@ -82,10 +87,29 @@ func TestPartsBadInput(t *testing.T) {
 		{[]string{a, a}, "a.csv: is listed twice among the parts; every part is read once"},
 		{[]string{a, empty}, "empty.csv: no data rows after the header; every part needs rows"},
 		{[]string{a, bad}, `bad.csv:3: column "a": value "high" is not a number`},
+		{[]string{a, zero}, "zero.csv: file is empty (a header line naming the columns is needed)"},
+		{[]string{a, twice}, `twice.csv:1: header: column name "a" appears twice (columns 2 and 3)`},
 	} {
 		_, err := LoadFiles(c.parts, opt)
 		if err == nil || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("%v: got %v, want %q", c.parts, err, c.want)
 		}
+	}
+}
+
+// inPart marks a data error (also wrapped) as a problem with the part as a
+// whole, which local gives back unchanged (not renumbered through the
+// parts); any other error passes as it is.
+func TestInPart(t *testing.T) {
+	de := &Error{File: "p2.csv", Line: 1, Msg: "header: column 1 has no name"}
+	p := &partRecords{spans: []PartSpan{{File: "p1.csv", Offset: 0, Last: 5}, {File: "p2.csv", Offset: 5, Last: 9}}}
+	for _, err := range []error{de, fmt.Errorf("opening: %w", de)} {
+		if got := p.local(inPart(err)); got != de {
+			t.Errorf("%v: local gives %v, want the part's own error", err, got)
+		}
+	}
+	other := errors.New("not a data error")
+	if got := inPart(other); got != other {
+		t.Errorf("a plain error became %v", got)
 	}
 }
