@@ -7,8 +7,20 @@ import (
 	"ordplan/runner"
 )
 
+// The files every run writes whatever its results (Outputs), named before
+// it computes: the output folder is checked for them at once.
+const (
+	DecisionsFile  = "decisions.json"
+	ReportMarkdown = "report.md"
+	ReportHTML     = "report.html"
+)
+
+// ReportFiles lists DecisionsFile, ReportMarkdown and ReportHTML.
+var ReportFiles = []string{DecisionsFile, ReportHTML, ReportMarkdown}
+
 // Outputs renders every file of a run except run.json: decisions.json,
-// report.md and report.html.
+// report.md and report.html (ReportFiles), the figures, the tables and the
+// predictions, whose names depend on the results.
 func Outputs(r *runner.Result, dec *runner.Decisions, changes []string) (map[string][]byte, error) {
 	b, err := runner.MarshalStable(dec)
 	if err != nil {
@@ -20,9 +32,9 @@ func Outputs(r *runner.Result, dec *runner.Decisions, changes []string) (map[str
 		return nil, err
 	}
 	files := map[string][]byte{
-		"decisions.json": b,
-		"report.md":      d.markdown(),
-		"report.html":    page,
+		DecisionsFile:  b,
+		ReportMarkdown: d.markdown(),
+		ReportHTML:     page,
 	}
 	owner := map[string]string{}
 	for _, c := range d.allCharts() {

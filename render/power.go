@@ -11,8 +11,18 @@ import (
 	"ordplan/runner/simulate"
 )
 
+// PowerFiles are the files of a power study (PowerOutputs), named before
+// it computes.
+var PowerFiles = []string{powerHTML, powerJSON, powerMarkdown}
+
+const (
+	powerHTML     = "power.html"
+	powerJSON     = "power.json"
+	powerMarkdown = "power.md"
+)
+
 // PowerOutputs renders a power study: power.md, power.html (with the
-// chart of power against n) and power.json.
+// chart of power against n) and power.json (PowerFiles).
 func PowerOutputs(pr *simulate.PowerResult) (map[string][]byte, error) {
 	js, err := runner.MarshalStable(pr)
 	if err != nil {
@@ -51,7 +61,7 @@ func PowerOutputs(pr *simulate.PowerResult) (map[string][]byte, error) {
 	if err != nil {
 		return nil, err
 	}
-	return map[string][]byte{"power.md": d.markdown(), "power.html": page, "power.json": js}, nil
+	return map[string][]byte{powerMarkdown: d.markdown(), powerHTML: page, powerJSON: js}, nil
 }
 
 func fmtRate(r simulate.Rate) string {

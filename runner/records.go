@@ -6,7 +6,9 @@ import (
 	"encoding/hex"
 	"encoding/json"
 	"path/filepath"
+	"runtime"
 
+	"ordplan/plan"
 	"ordplan/runner/data"
 	"ordplan/runner/design"
 	"ordplan/runner/fit"
@@ -272,7 +274,7 @@ type RunRecord struct {
 	Program string    `json:"program"`
 	Version string    `json:"version"`
 	Plan    PlanRef   `json:"plan"`
-	Data    DataRef   `json:"data"`
+	Data    *DataRef  `json:"data,omitempty"` // absent when no data file is read (ordplan power)
 	NewRows *DataRef  `json:"new_rows,omitempty"`
 	Imputed []DataRef `json:"imputed,omitempty"` // the imputed data files
 	// Imputation: how the program imputed each outcome's data (data.missing: impute).
@@ -290,9 +292,10 @@ type RunRecord struct {
 // RunJSON is run.json for a run whose outputs are files (by name): the
 // program, plan, data and seed, and the SHA-256 of every output.
 func RunJSON(r *Result, files map[string][]byte) ([]byte, error) {
+	data := dataRef(r)
 	rec := RunRecord{Program: "ordplan", Version: r.Version,
 		Plan: PlanRef{File: filepath.Base(r.Plan.Path), Title: r.Plan.Title, SHA256: r.Plan.Hash},
-		Data: dataRef(r), NewRows: newRowsRef(r), Imputed: r.Imputed, Seed: r.Plan.Seed, Outputs: map[string]string{}}
+		Data: &data, NewRows: newRowsRef(r), Imputed: r.Imputed, Seed: r.Plan.Seed}
 	rec.Timestamp = r.Started
 	for _, or := range r.Outcomes {
 		if or.Imputed != nil && or.Imputed.Chained != nil {
@@ -301,6 +304,22 @@ func RunJSON(r *Result, files map[string][]byte) ([]byte, error) {
 	}
 	rec.GoVersion, rec.Platform, rec.Command = r.GoVersion, r.Platform, r.Command
 	rec.Registration = registrationRecord(r.Registration)
+	return rec.withOutputs(files)
+}
+
+// SimulationRunJSON is run.json for `ordplan power`, which reads no data
+// file (every data set is drawn from the plan's assumptions): the program,
+// the plan, the seed, the command line and the SHA-256 of every output.
+func SimulationRunJSON(p *plan.Plan, command string, files map[string][]byte) ([]byte, error) {
+	rec := RunRecord{Program: "ordplan", Version: Version,
+		Plan: PlanRef{File: filepath.Base(p.Path), Title: p.Title, SHA256: p.Hash}, Seed: p.Seed,
+		GoVersion: runtime.Version(), Platform: runtime.GOOS + "/" + runtime.GOARCH, Command: command}
+	return rec.withOutputs(files)
+}
+
+// withOutputs is the record with the SHA-256 of every output, encoded.
+func (rec RunRecord) withOutputs(files map[string][]byte) ([]byte, error) {
+	rec.Outputs = make(map[string]string, len(files))
 	for n, b := range files {
 		s := sha256.Sum256(b)
 		rec.Outputs[n] = hex.EncodeToString(s[:])

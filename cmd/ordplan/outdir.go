@@ -113,18 +113,50 @@ func writeAll(dir string, names []string, files map[string][]byte) error {
 	return nil
 }
 
-// writeRun writes a run's files into dir, then run.json with their hashes,
-// all or nothing (see writeAll): a failure leaves the previous run's files
-// as they were, and no symlink in dir is written through. The caller holds
-// the folder's lock (lockOutput).
+// recordFile is the record a run leaves in its output folder: what
+// produced the outputs and the SHA-256 of each (runner.RunJSON).
+const recordFile = "run.json"
+
+// claimOutput locks the output folder (lockOutput) and checks at once,
+// before any data is read or fitted, the outputs whose names are known
+// before the run computes (fixed) and the record: a file there under one
+// of these names that no earlier run left as it is stops the run (O4).
+// Names known only from the results are checked again when written
+// (writeOutputs).
+func claimOutput(dir string, fixed []string) (*outputLock, error) {
+	lock, err := lockOutput(dir)
+	if err != nil {
+		return nil, err
+	}
+	if mine := usersFiles(dir, fixed, nil); len(mine) > 0 {
+		lock.Unlock()
+		return nil, usersFilesError(dir, mine)
+	}
+	return lock, nil
+}
+
+// writeRun writes a run's or a rehearsal's files with its run.json (see
+// writeOutputs).
 func writeRun(r *runner.Result, dir string, files map[string][]byte) error {
+	return writeOutputs(dir, files, func(files map[string][]byte) ([]byte, error) {
+		return runner.RunJSON(r, files)
+	})
+}
+
+// writeOutputs writes a command's files into dir, then run.json, the
+// record that record makes of them (with their hashes), all or nothing (see
+// writeAll): a failure leaves the previous run's files as they were, and no
+// symlink in dir is written through. A file under an output's name that no
+// earlier run left as it is stops the write (usersFiles). The caller holds
+// the folder's lock (claimOutput).
+func writeOutputs(dir string, files map[string][]byte, record func(map[string][]byte) ([]byte, error)) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return fmt.Errorf("output directory: %w", err)
 	}
 	names := make([]string, 0, len(files)+1)
 	for n := range files {
-		if n == "run.json" {
-			return fmt.Errorf("an output may not be called run.json")
+		if n == recordFile {
+			return fmt.Errorf("an output may not be called %s", recordFile)
 		}
 		names = append(names, n)
 	}
@@ -136,7 +168,7 @@ func writeRun(r *runner.Result, dir string, files map[string][]byte) error {
 		}
 		seen[strings.ToLower(n)] = n
 	}
-	b, err := runner.RunJSON(r, files)
+	b, err := record(files)
 	if err != nil {
 		return err
 	}
@@ -144,13 +176,13 @@ func writeRun(r *runner.Result, dir string, files map[string][]byte) error {
 	for n, c := range files {
 		all[n] = c
 	}
-	all["run.json"] = b
-	if mine := usersFiles(dir, files); len(mine) > 0 {
-		return fmt.Errorf("output folder %s: %s not as an earlier ordplan run there left it (your own file, or an output changed since); ordplan does not overwrite it: move it away, or give another --out",
-			dir, quoteNames(mine))
+	all[recordFile] = b
+	names = append(names, recordFile)
+	if mine := usersFiles(dir, names, files); len(mine) > 0 {
+		return usersFilesError(dir, mine)
 	}
 	stale := staleOutputs(dir, all)
-	if err := writeAll(dir, append(names, "run.json"), all); err != nil {
+	if err := writeAll(dir, names, all); err != nil {
 		return err
 	}
 	// Files the previous run listed and this one does not write (the
@@ -160,6 +192,12 @@ func writeRun(r *runner.Result, dir string, files map[string][]byte) error {
 		os.Remove(filepath.Join(dir, n))
 	}
 	return nil
+}
+
+// usersFilesError is the refusal to replace the user's files (O4).
+func usersFilesError(dir string, mine []string) error {
+	return fmt.Errorf("output folder %s: %s not as an earlier ordplan run there left it (your own file, or an output changed since); ordplan does not overwrite it: move it away, or give another --out",
+		dir, quoteNames(mine))
 }
 
 // staleOutputs lists the outputs named by the run.json in dir that are not
@@ -193,33 +231,52 @@ func staleOutputs(dir string, files map[string][]byte) []string {
 // previousOutputs is the SHA-256 of each output the run.json in dir
 // records (nil when there is none to read).
 func previousOutputs(dir string) map[string]string {
-	path := filepath.Join(dir, "run.json")
+	outputs, _ := previousRecord(dir)
+	return outputs
+}
+
+// previousRecord reads the run.json in dir: the SHA-256 of each output it
+// records, and whether a regular file there is not such a record (the
+// user's own run.json). A symlink there counts as absent: the rename
+// replaces it, never its target.
+func previousRecord(dir string) (outputs map[string]string, foreign bool) {
+	path := filepath.Join(dir, recordFile)
 	fi, err := os.Lstat(path)
-	if err != nil || !fi.Mode().IsRegular() || fi.Size() > 64<<20 {
-		return nil
+	if err != nil || !fi.Mode().IsRegular() {
+		return nil, false
+	}
+	if fi.Size() > 64<<20 {
+		return nil, true
 	}
 	b, err := os.ReadFile(path)
 	if err != nil {
-		return nil
+		return nil, true
 	}
 	var prev struct {
+		Program string            `json:"program"`
 		Outputs map[string]string `json:"outputs_sha256"`
 	}
-	if json.Unmarshal(b, &prev) != nil {
-		return nil
+	if json.Unmarshal(b, &prev) != nil || prev.Program != "ordplan" || prev.Outputs == nil {
+		return nil, true
 	}
-	return prev.Outputs
+	return prev.Outputs, false
 }
 
-// usersFiles lists the files in dir that a run would replace and that are
-// not as an earlier run left them (the run.json there records another
-// SHA-256, or none): the user's own files, or outputs they changed since.
-// A file with the very bytes the run writes is not among them.
-func usersFiles(dir string, files map[string][]byte) []string {
-	prev := previousOutputs(dir)
+// usersFiles lists the files in dir among names that a run would replace
+// and that are not as an earlier run left them (the run.json there records
+// another SHA-256, or none): the user's own files, or outputs they changed
+// since; and run.json when it is not an ordplan run's record. With the
+// contents the run writes (files), a file with the very bytes it writes is
+// not among them; without them (nil: before the run computes, claimOutput)
+// every file not recorded is.
+func usersFiles(dir string, names []string, files map[string][]byte) []string {
+	prev, foreign := previousRecord(dir)
 	var out []string
-	for n, content := range files {
-		if n == "run.json" {
+	for _, n := range names {
+		if n == recordFile {
+			if foreign {
+				out = append(out, n)
+			}
 			continue
 		}
 		fi, err := os.Lstat(filepath.Join(dir, n))
@@ -231,7 +288,8 @@ func usersFiles(dir string, files map[string][]byte) []string {
 			out = append(out, n)
 			continue
 		}
-		if h := sha256Hex(c); h != prev[n] && h != sha256Hex(content) {
+		h := sha256Hex(c)
+		if content, known := files[n]; h != prev[n] && (!known || h != sha256Hex(content)) {
 			out = append(out, n)
 		}
 	}

@@ -72,7 +72,7 @@ func TestStaleOutputsRemoved(t *testing.T) {
 	dir := t.TempDir()
 	// old.csv is as the previous run wrote it (sha256 of "old"); edited.csv
 	// was changed by the user since, so it is theirs and stays.
-	os.WriteFile(filepath.Join(dir, "run.json"), []byte(`{"outputs_sha256": {"old.csv": "`+
+	os.WriteFile(filepath.Join(dir, "run.json"), []byte(`{"program": "ordplan", "outputs_sha256": {"old.csv": "`+
 		sha256Hex([]byte("old"))+
 		`", "edited.csv": "`+sha256Hex([]byte("as written"))+`", "keep.md": "y", "../escape": "z"}}`), 0o644)
 	os.WriteFile(filepath.Join(dir, "old.csv"), []byte("old"), 0o644)
@@ -82,5 +82,67 @@ func TestStaleOutputsRemoved(t *testing.T) {
 	stale := staleOutputs(dir, files)
 	if len(stale) != 1 || stale[0] != "old.csv" {
 		t.Fatalf("stale %v", stale)
+	}
+}
+
+// ordplan power keeps the record run and rehearse keep: run.json with the
+// SHA-256 of power.md, power.html and power.json. A second study replaces
+// its own outputs; a power.md edited since is the user's and stops the
+// next study, which leaves every file as it was.
+func TestPowerOutputsRecorded(t *testing.T) {
+	dir := t.TempDir()
+	planPath := filepath.Join(dir, "p.yaml")
+	os.WriteFile(planPath, []byte(powerQueuePlan), 0o644)
+	out := filepath.Join(dir, "out")
+	args := []string{"power", planPath, "--n", "60", "--replicates", "2", "--quiet", "--out", out}
+	for i := 0; i < 2; i++ {
+		if o, e, code := runCLI(args...); code != 0 {
+			t.Fatalf("study %d: exit %d %s %s", i+1, code, o, e)
+		}
+	}
+	rec := previousOutputs(out)
+	for _, n := range []string{"power.md", "power.html", "power.json"} {
+		b, err := os.ReadFile(filepath.Join(out, n))
+		if err != nil || rec[n] != sha256Hex(b) {
+			t.Errorf("run.json records %q for %s (%v)", rec[n], n, err)
+		}
+	}
+	if len(rec) != 3 {
+		t.Errorf("run.json records %v", rec)
+	}
+	run, _ := os.ReadFile(filepath.Join(out, "run.json"))
+	if !strings.Contains(string(run), `"command_line": "ordplan power `) || strings.Contains(string(run), `"data"`) {
+		t.Errorf("run.json of a power study:\n%s", run)
+	}
+	os.WriteFile(filepath.Join(out, "power.md"), []byte("my edits\n"), 0o644)
+	o, e, code := runCLI(args...)
+	if code != exitFail || o != "" || !strings.Contains(e, "power.md is not as an earlier ordplan run there left it") {
+		t.Errorf("edited power.md: exit %d %q %q", code, o, e)
+	}
+	if b, _ := os.ReadFile(filepath.Join(out, "power.md")); string(b) != "my edits\n" {
+		t.Errorf("the edited power.md was overwritten: %q", b)
+	}
+	if after, _ := os.ReadFile(filepath.Join(out, "run.json")); string(after) != string(run) {
+		t.Error("the refused study changed run.json")
+	}
+}
+
+// The early check (claimOutput) refuses every file not recorded, even one
+// whose bytes the run would write (it cannot know them yet); the check
+// when writing lets such a file be replaced.
+func TestClaimOutputChecksFixedNames(t *testing.T) {
+	dir := t.TempDir()
+	os.WriteFile(filepath.Join(dir, "report.md"), []byte("same"), 0o644)
+	if _, err := claimOutput(dir, []string{"decisions.json", "report.md", "run.json"}); err == nil || !strings.Contains(err.Error(), "report.md is not as an earlier") {
+		t.Fatalf("claim: %v", err)
+	}
+	// The refusal released the lock.
+	l, err := claimOutput(dir, []string{"decisions.json", "run.json"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	l.Unlock()
+	if mine := usersFiles(dir, []string{"report.md"}, map[string][]byte{"report.md": []byte("same")}); len(mine) != 0 {
+		t.Errorf("a file with the bytes the run writes: %v", mine)
 	}
 }

@@ -19,6 +19,7 @@ const powerUsage = "usage: ordplan power PLAN.yaml --n 200,400,800 [--replicates
 // cmdPower sizes the study: the whole decision procedure on many data sets
 // simulated from the plan's assumptions at each sample size.
 func cmdPower(args []string, stdout, stderr io.Writer) int {
+	rawArgs := append([]string(nil), args...)
 	fs := newFlags("power", stderr)
 	sizes := fs.String("n", "", "sample sizes, comma separated (required)")
 	reps := fs.Int("replicates", 500, "data sets simulated at each size")
@@ -66,7 +67,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		base := filepath.Base(planPath)
 		dir = filepath.Join("out", base[:len(base)-len(filepath.Ext(base))]+"-power")
 	}
-	olock, err := lockOutput(dir)
+	olock, err := claimOutput(dir, append(render.PowerFiles, recordFile))
 	if err != nil {
 		return fail(stderr, err)
 	}
@@ -100,7 +101,11 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
-	if err := writeAll(dir, []string{"power.json", "power.md", "power.html"}, files); err != nil {
+	command := commandLine(append([]string{"ordplan", "power"}, resultArgs(rawArgs)...))
+	err = writeOutputs(dir, files, func(files map[string][]byte) ([]byte, error) {
+		return runner.SimulationRunJSON(p, command, files)
+	})
+	if err != nil {
 		return fail(stderr, err)
 	}
 	for _, op := range pr.Outcomes {

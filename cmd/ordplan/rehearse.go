@@ -51,7 +51,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 		base := filepath.Base(planPath)
 		dir = filepath.Join("out", base[:len(base)-len(filepath.Ext(base))]+"-rehearsal")
 	}
-	olock, err := lockOutput(dir)
+	olock, err := claimOutput(dir, append(render.ReportFiles, simulatedFile, recordFile))
 	if err != nil {
 		return fail(stderr, err)
 	}
