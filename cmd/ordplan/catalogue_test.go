@@ -956,6 +956,12 @@ func commandLineItems(dir string) []badInput {
 			want: []string{`invalid value "tanh" for flag -link: unknown link "tanh" (want logit, probit, cloglog, loglog or cauchy)`, "Run 'ordplan fit --help' for its flags, each with an example."}},
 		{id: "C3", name: "a word close to an allowed one", args: fitArgs(d, "--predictors", "a", "--covariance", "Sandwich-Plain"), code: 2, lines: true,
 			want: []string{`unknown covariance "Sandwich-Plain" (want observed, expected, sandwich, sandwich_plain or clustered); did you mean "sandwich_plain"?`}},
+		{id: "C5", name: "an empty item in a list of the command line", args: fitArgs(d, "--predictors", "a,,b"), code: 2,
+			want: []string{`ordplan fit: --predictors: item 2 of 3 in "a,,b" is empty (nothing but spaces between two commas, or a comma at either end): remove the extra comma or give the missing name`}},
+		{id: "C5", name: "a comma at the end of a list", args: fitArgs(d, "--predictors", "a,b", "--nonparallel", "a, "), code: 2,
+			want: []string{`ordplan fit: --nonparallel: item 2 of 2 in "a, " is empty`}},
+		{id: "C5", name: "an empty constraint group", args: fitArgs(d, "--predictors", "a,b", "--constrained", "g:a;;h:b"), code: 2,
+			want: []string{`ordplan fit: --constrained: group 2 of 3 in "g:a;;h:b" is empty (nothing but spaces between two semicolons, or a semicolon at either end): remove the extra semicolon`}},
 		{id: "C4", name: "help on a topic that does not exist", args: []string{"help", "plans"}, code: 2,
 			want: []string{`ordplan help: no command or topic "plans" (commands: run, check, fit, init, rehearse, power, freeze, worker, schema, version; topic: plan)`}},
 	}

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"reflect"
 	"slices"
@@ -37,7 +38,11 @@ func parseCompactTerms(s string) (design.Spec, error) {
 	var spec design.Spec
 	names := map[string]bool{}
 	declared := map[string]string{} // categorical column -> the item that declared it
-	for i, item := range splitList(s) {
+	items, err := listItems(s)
+	if err != nil {
+		return spec, err
+	}
+	for i, item := range items {
 		t, src, err := parseCompactTerm(item, names)
 		if err != nil {
 			return spec, fmt.Errorf("predictor %d (%q): %v", i+1, item, err)
@@ -249,6 +254,9 @@ func checkTermName(name string) error {
 	return nil
 }
 
+// errEmptyGroup is an empty constraint group: a usage problem (exit 2).
+var errEmptyGroup = errors.New("remove the extra semicolon")
+
 // parseGroups reads constraint groups written as "name:a,b;other:c" (or
 // "a,b" for a single unnamed group).
 func parseGroups(s string) ([]runner.Group, error) {
@@ -257,10 +265,11 @@ func parseGroups(s string) ([]runner.Group, error) {
 		return nil, nil
 	}
 	names := map[string]bool{}
-	for _, part := range strings.Split(s, ";") {
+	parts := strings.Split(s, ";")
+	for k, part := range parts {
 		part = strings.TrimSpace(part)
 		if part == "" {
-			continue
+			return nil, fmt.Errorf("group %d of %d in %q is empty (nothing but spaces between two semicolons, or a semicolon at either end): %w", k+1, len(parts), s, errEmptyGroup)
 		}
 		g := runner.Group{}
 		if i := strings.Index(part, ":"); i >= 0 {
@@ -274,7 +283,10 @@ func parseGroups(s string) ([]runner.Group, error) {
 			return nil, fmt.Errorf("constraint group %q is given twice", g.Name)
 		}
 		names[g.Name] = true
-		g.Predictors = splitList(part)
+		var err error
+		if g.Predictors, err = listItems(part); err != nil {
+			return nil, fmt.Errorf("group %d: %w", k+1, err)
+		}
 		if len(g.Predictors) == 0 {
 			return nil, fmt.Errorf("constraint group %q has no predictors", g.Name)
 		}
@@ -290,13 +302,31 @@ func parseGroups(s string) ([]runner.Group, error) {
 	return out, nil
 }
 
-// splitList splits "a, b,c" into its trimmed, non-empty items.
-func splitList(s string) []string {
-	var out []string
-	for _, p := range strings.Split(s, ",") {
-		if p = strings.TrimSpace(p); p != "" {
-			out = append(out, p)
+// listItems splits a comma-separated flag value ("a, b,c") into its
+// trimmed items. An empty item (two commas in a row, a comma at either end,
+// only spaces between commas) is refused: dropping it would read another
+// list than the one typed. A value of spaces only has no items.
+func listItems(s string) ([]string, error) {
+	if strings.TrimSpace(s) == "" {
+		return nil, nil
+	}
+	items := strings.Split(s, ",")
+	for i := range items {
+		items[i] = strings.TrimSpace(items[i])
+		if items[i] == "" {
+			return nil, &emptyItemError{list: s, item: i + 1, of: len(items)}
 		}
 	}
-	return out
+	return items, nil
+}
+
+// emptyItemError is an empty item in a list of the command line: a usage
+// problem (exit 2).
+type emptyItemError struct {
+	list     string
+	item, of int
+}
+
+func (e *emptyItemError) Error() string {
+	return fmt.Sprintf("item %d of %d in %q is empty (nothing but spaces between two commas, or a comma at either end): remove the extra comma or give the missing name", e.item, e.of, e.list)
 }

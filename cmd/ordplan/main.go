@@ -161,7 +161,7 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		return fail(stderr, err)
 	}
 	if *f.partitions != "" || *f.queue.url != "" {
-		return fitPartitioned(s, f, splitList(*f.partitions), stdout, stderr)
+		return fitPartitioned(s, f, checkedList(*f.partitions), stdout, stderr)
 	}
 	// The data, the design and the fits' large arrays hold no pointers, so
 	// collecting garbage more often costs little and keeps the peak memory
@@ -236,6 +236,15 @@ func (f *fitFlags) usageProblem(fs *flag.FlagSet) string {
 			return fmt.Sprintf("--%s is required", req.name)
 		}
 	}
+	for _, l := range []struct{ name, v string }{{"predictors", *f.predictors}, {"categories", *f.categories},
+		{"nonparallel", *f.nonparallel}, {"partitions", *f.partitions}} {
+		if _, err := listItems(l.v); err != nil {
+			return fmt.Sprintf("--%s: %v", l.name, err)
+		}
+	}
+	if _, err := parseGroups(*f.constrained); errors.Is(err, errEmptyGroup) || errors.As(err, new(*emptyItemError)) {
+		return "--constrained: " + err.Error()
+	}
 	for _, c := range []struct{ name, v, a, b string }{
 		{"missing", *f.missing, "drop", "refuse"},
 		{"weight-kind", *f.weightKind, "frequency", "sampling"},
@@ -251,7 +260,7 @@ func (f *fitFlags) usageProblem(fs *flag.FlagSet) string {
 	if *f.headerRow < 1 {
 		return fmt.Sprintf("--header-row must be a sheet row number, 1 or more (got %d)", *f.headerRow)
 	}
-	switch parts, url := splitList(*f.partitions), *f.queue.url; {
+	switch parts, url := checkedList(*f.partitions), *f.queue.url; {
 	case len(parts) > 0 && *f.dataFile != "":
 		return "give --data (one file) or --partitions (the data as several files, fitted by queue workers), not both"
 	case len(parts) > 0 && url == "":
@@ -265,9 +274,16 @@ func (f *fitFlags) usageProblem(fs *flag.FlagSet) string {
 	return ""
 }
 
+// checkedList is the items of a list flag that usageProblem has checked
+// (listItems: no empty item).
+func checkedList(s string) []string {
+	items, _ := listItems(s)
+	return items
+}
+
 // workbooks reports whether the data files are .xlsx workbooks.
 func (f *fitFlags) workbooks() bool {
-	files := splitList(*f.partitions)
+	files := checkedList(*f.partitions)
 	if *f.dataFile != "" {
 		files = append(files, *f.dataFile)
 	}
@@ -289,9 +305,9 @@ func (f *fitFlags) single() (runner.SingleFit, error) {
 	for _, t := range dspec.Terms {
 		termNames = append(termNames, t.Name)
 	}
-	s := runner.SingleFit{DataFile: *f.dataFile, Outcome: *f.outcome, Categories: splitList(*f.categories),
+	s := runner.SingleFit{DataFile: *f.dataFile, Outcome: *f.outcome, Categories: checkedList(*f.categories),
 		Predictors: termNames, Design: &dspec, Approach: f.approach, Backward: *f.direction == "backward",
-		Link: f.link, Nonparallel: splitList(*f.nonparallel), Weights: *f.weights, Offset: *f.offset,
+		Link: f.link, Nonparallel: checkedList(*f.nonparallel), Weights: *f.weights, Offset: *f.offset,
 		Refuse: *f.missing == "refuse", Covariance: f.covariance, Cluster: *f.cluster, Sampling: *f.weightKind == "sampling"}
 	s.Dialect, _ = data.ParseDialect(*f.delimiter, *f.decimal) // checked in usageProblem
 	s.Dialect.Sheet, s.Dialect.HeaderRow = *f.sheet, *f.headerRow
