@@ -253,44 +253,67 @@ func (ly *layout) fillEstimates(r *Result, m Model, st newtonState) {
 
 // fittedCheck returns the smallest fitted probability of an observed
 // category and the number of rows with a negative category probability.
+// The probability is the exponential of the smallest log-probability the
+// evaluation's own kernel gives at the evaluation's own linear predictors
+// (blockColumns, blockLinear), so it is the value an evaluation at theta
+// holds (minLP), which finish takes instead when it has it: one value
+// whichever way it is reached. A row whose observed category has no
+// positive probability gives that probability (0 or less).
 func (p *problem) fittedCheck(theta []float64) (float64, int) {
 	c := p.coefs(theta)
 	d, q := p.d, p.q
+	positive := p.ker.positive()
 	nb := (d.n + blockRows - 1) / blockRows
+	minLPs := make([]float64, nb)
 	mins := make([]float64, nb)
 	negs := make([]int, nb)
 	p.eachBlock(func(b, lo, hi int) {
+		s, _ := p.scratch.Get().(*scratch)
+		if s == nil {
+			s = p.newScratch()
+		}
+		defer p.scratch.Put(s)
+		rows := hi - lo
+		p.blockColumns(c, lo, rows, s)
+		p.blockLinear(c, lo, rows, s)
 		L := make([]float64, q)
 		pr := make([]float64, q+1)
-		buf := make([]float64, d.K)
-		minP := math.Inf(1)
+		minLP, minP := math.Inf(1), math.Inf(1)
 		neg := 0
-		for i := lo; i < hi; i++ {
-			if d.weight(i) == 0 {
+		for i := 0; i < rows; i++ {
+			r := lo + i
+			if d.weight(r) == 0 {
 				continue
 			}
-			p.linear(c, i, L, buf)
+			for m := range L {
+				L[m] = c.tau[m] - s.eta[m*rows+i]
+			}
+			lp, ok := p.ker.eval(L, d.y[r], nil, nil)
+			minLP = math.Min(minLP, lp)
+			if positive && ok {
+				continue
+			}
 			p.ker.probs(L, pr)
-			bad := false
+			if !ok {
+				minP = math.Min(minP, pr[d.y[r]])
+			}
 			for _, v := range pr {
 				if v < 0 {
-					bad = true
+					neg += d.rowsBehind(r)
+					break
 				}
 			}
-			if bad {
-				neg += d.rowsBehind(i)
-			}
-			minP = math.Min(minP, pr[d.y[i]])
 		}
-		mins[b], negs[b] = minP, neg
+		minLPs[b], mins[b], negs[b] = minLP, minP, neg
 	})
-	minP := math.Inf(1)
+	minLP, minP := math.Inf(1), math.Inf(1)
 	neg := 0
 	for b := range mins {
+		minLP = math.Min(minLP, minLPs[b])
 		minP = math.Min(minP, mins[b])
 		neg += negs[b]
 	}
-	return minP, neg
+	return math.Min(math.Exp(minLP), minP), neg
 }
 
 // linear fills L with the J-1 linear predictors of row i (buf: scratch of
