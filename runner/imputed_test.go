@@ -480,8 +480,9 @@ func TestImputedStackedWorkbook(t *testing.T) {
 
 // TestImputedStepwise: stepwise selection on imputed data reads pooled
 // tests; with identical sets every step, test and the selected partial set
-// are the single-set selection's, and with sets that differ each step's
-// tests are pooled (D1 for Wald, D3 for likelihood ratio).
+// are the single-set selection's, and with sets that differ the first
+// step's tests are the D1 (Wald) or D3 (likelihood-ratio) tests computed
+// directly from each set's own fits (stepOneDirect).
 func TestImputedStepwise(t *testing.T) {
 	for _, test := range []string{"wald", "lr"} {
 		write := func(dir, data string) *plan.Plan {
@@ -524,18 +525,130 @@ rules:
 			t.Errorf("%s: partial sets %v vs %v", test, oi.FreeSets[0].Predictors, os1.FreeSets[0].Predictors)
 		}
 
+		// Sets that differ: the first step's tests are the D1 (Wald) or D3
+		// (likelihood-ratio) tests computed here from each set's own fits.
 		dir = imputedFixture(t, 4, false)
 		od := runPlan(t, write(dir, "{file: orig.csv, imputed: {file: stacked.csv, column: imp}}"), 0).Outcomes[0]
 		sd := od.Stepwise[0].Result
 		if !sd.OK || len(sd.Steps) == 0 {
 			t.Fatalf("%s, differing sets: %+v", test, sd)
 		}
-		for _, tt := range sd.Steps[0].Tests {
-			if !tt.OK || tt.Pooled != want || !(tt.DF2 > 0) {
-				t.Errorf("%s, differing sets, first step: %+v", test, tt)
+		direct := stepOneDirect(t, filepath.Join(dir, "stacked.csv"), 4, test)
+		if len(sd.Steps[0].Tests) != len(direct) {
+			t.Fatalf("%s, differing sets: %d tests in the first step, want %d", test, len(sd.Steps[0].Tests), len(direct))
+		}
+		for j, tt := range sd.Steps[0].Tests {
+			w := direct[j]
+			if !tt.OK || tt.Pooled != want || w.Method != want || tt.DF != w.DF1 ||
+				!near(tt.Chi2, w.F*float64(w.DF1), 1e-6) || !near(tt.DF2, w.DF2, 1e-6) || !near(tt.P, w.P, 1e-6) {
+				t.Errorf("%s, differing sets, first step, %s: %+v\nwant %+v", test, tt.Name, tt, w)
 			}
 		}
 	}
+}
+
+// near reports whether a and b agree within tol relative to the larger.
+func near(a, b, tol float64) bool {
+	return math.Abs(a-b) <= tol*math.Max(math.Abs(a), math.Abs(b))
+}
+
+// stepOneDirect computes the first step of stepwise selection on the m
+// imputed sets of the stacked file (columns imp, y, x1, x2; set 0 the
+// original) from each set's own fits, without the runner: for x1 and x2 in
+// turn, the D1 test (Wald) of its equal slopes in the nonparallel model,
+// from Rubin's rules over the sets' estimates and covariances, or the D3
+// test (lr) of the model with its slopes parallel against the nonparallel
+// model, from each set's deviance difference at its own estimates and at
+// the means of the sets' estimates. It checks that the sets' estimates
+// differ.
+func stepOneDirect(t *testing.T, stacked string, m int, test string) []impute.FTest {
+	t.Helper()
+	raw, err := os.ReadFile(stacked)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sets := make([]*fit.Data, m)
+	for k := range sets {
+		sets[k] = &fit.Data{J: 3, Predictors: []string{"x1", "x2"}}
+	}
+	for _, line := range strings.Split(strings.TrimSpace(string(raw)), "\n")[1:] {
+		f := strings.Split(line, ",")
+		k, _ := strconv.Atoi(f[0])
+		if k == 0 {
+			continue
+		}
+		y, _ := strconv.Atoi(f[1])
+		x1, _ := strconv.ParseFloat(f[2], 64)
+		x2, _ := strconv.ParseFloat(f[3], 64)
+		d := sets[k-1]
+		d.Y, d.X = append(d.Y, y-1), append(d.X, x1, x2)
+	}
+	fitAll := func(e1, e2 fit.Effect) []*fit.Result {
+		out := make([]*fit.Result, m)
+		for k, d := range sets {
+			r, err := fit.Fit(d, fit.Model{Comparison: fit.Cumulative, Link: fit.Logit, Effects: []fit.Effect{e1, e2}}, fit.Options{})
+			if err != nil || !r.OK() {
+				t.Fatalf("set %d: %v %v", k+1, err, r)
+			}
+			out[k] = r
+		}
+		return out
+	}
+	mean := func(rs []*fit.Result) []float64 {
+		out := make([]float64, len(rs[0].Estimates))
+		for _, r := range rs {
+			for i, v := range r.Estimates {
+				out[i] += v / float64(len(rs))
+			}
+		}
+		return out
+	}
+	full := fitAll(fit.Nonparallel, fit.Nonparallel)
+	if full[0].Estimates[3] == full[1].Estimates[3] {
+		t.Fatal("the imputed sets give the same estimates")
+	}
+	var out []impute.FTest
+	for c, name := range []string{"x1", "x2"} {
+		var ft impute.FTest
+		switch test {
+		case "wald":
+			per := make([]impute.Set, m)
+			for k, r := range full {
+				per[k] = impute.Set{Est: r.Estimates, Cov: r.Cov}
+			}
+			pl, err := impute.Pool(per, 300)
+			if err != nil {
+				t.Fatal(err)
+			}
+			first := slices.Index(full[0].ParamNames, name+"[1]")
+			C := make([]float64, len(full[0].Estimates))
+			C[first], C[first+1] = 1, -1
+			if ft, err = impute.D1(pl, C, nil); err != nil {
+				t.Fatal(err)
+			}
+		case "lr":
+			e := []fit.Effect{fit.Nonparallel, fit.Nonparallel}
+			e[c] = fit.Parallel
+			restricted := fitAll(e[0], e[1])
+			thF, thR := mean(full), mean(restricted)
+			own, at := make([]float64, m), make([]float64, m)
+			for k, d := range sets {
+				own[k] = 2 * (full[k].LogLik - restricted[k].LogLik)
+				sf, err1 := fit.PartitionSums(d, full[k].Model, thF, 0)
+				sr, err2 := fit.PartitionSums(d, restricted[k].Model, thR, 0)
+				if err1 != nil || err2 != nil {
+					t.Fatal(err1, err2)
+				}
+				at[k] = 2 * (sf.LogLik - sr.LogLik)
+			}
+			var err error
+			if ft, err = impute.D3(own, at, full[0].NParams-restricted[0].NParams); err != nil {
+				t.Fatal(err)
+			}
+		}
+		out = append(out, ft)
+	}
+	return out
 }
 
 // TestImputedSamplingWeightsScale: sampling weights count no units, so
