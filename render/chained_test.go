@@ -7,6 +7,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"ordplan/internal/testsurvey"
 )
 
 // TestChainedReport: a run that imputes by chained equations states the
@@ -19,7 +21,7 @@ func TestChainedReport(t *testing.T) {
 	var b strings.Builder
 	b.WriteString("y,x1,x2\n")
 	for i := 0; i < 200; i++ {
-		y, x1, x2 := surveyRow(rng)
+		y, x1, x2 := testsurvey.Report.Row(rng)
 		if rng.Float64() < 0.1*float64(y) {
 			fmt.Fprintf(&b, "%d,%.5f,\n", y, x1)
 		} else {

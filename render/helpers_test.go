@@ -1,8 +1,6 @@
 package render
 
 import (
-	"math"
-	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"strings"
@@ -58,22 +56,6 @@ func outputsOf(t *testing.T, res *runner.Result) map[string][]byte {
 		t.Fatal(err)
 	}
 	return files
-}
-
-// surveyRow draws a row of an invented survey: x1 standard normal, x2 =
-// 0.5 x1 + a standard normal, and y in 1..3 from a cumulative logit with
-// linear predictor 0.8 x1 - 0.5 x2 and cutpoints -0.4 and 0.9.
-func surveyRow(rng *rand.Rand) (y int, x1, x2 float64) {
-	x1 = rng.NormFloat64()
-	x2 = 0.5*x1 + rng.NormFloat64()
-	eta, u := 0.8*x1-0.5*x2, rng.Float64()
-	y = 1
-	for _, c := range []float64{-0.4, 0.9} {
-		if u > 1/(1+math.Exp(-(c-eta))) {
-			y++
-		}
-	}
-	return y, x1, x2
 }
 
 // hasAll reports each of wants that the rendered file name (its text doc)

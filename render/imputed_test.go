@@ -1,12 +1,13 @@
 package render
 
 import (
-	"fmt"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"ordplan/internal/testsurvey"
 )
 
 // runImputed runs an invented survey (seeded) on four stacked imputed
@@ -16,37 +17,9 @@ import (
 func runImputed(t *testing.T) map[string][]byte {
 	t.Helper()
 	dir := t.TempDir()
-	rng := rand.New(rand.NewPCG(31, 4))
-	const n, m = 240, 4
-	var orig, stack strings.Builder
-	orig.WriteString("y,x1,x2\n")
-	stack.WriteString("imp,y,x1,x2\n")
-	type row struct {
-		y      int
-		x1, x2 float64
-		miss   bool
-	}
-	rows := make([]row, n)
-	for i := range rows {
-		y, x1, x2 := surveyRow(rng)
-		rows[i] = row{y, x1, x2, rng.Float64() < 0.25}
-		if rows[i].miss {
-			fmt.Fprintf(&orig, "%d,%.5f,\n", y, x1)
-		} else {
-			fmt.Fprintf(&orig, "%d,%.5f,%.5f\n", y, x1, x2)
-		}
-	}
-	for k := 1; k <= m; k++ {
-		for _, r := range rows {
-			x2 := r.x2
-			if r.miss {
-				x2 = 0.5*r.x1 + rng.NormFloat64()
-			}
-			fmt.Fprintf(&stack, "%d,%d,%.5f,%.5f\n", k, r.y, r.x1, x2)
-		}
-	}
-	os.WriteFile(filepath.Join(dir, "orig.csv"), []byte(orig.String()), 0o644)
-	os.WriteFile(filepath.Join(dir, "stacked.csv"), []byte(stack.String()), 0o644)
+	sv := testsurvey.Report.Imputed(rand.New(rand.NewPCG(31, 4)), testsurvey.ImputedOptions{Rows: 240, Sets: 4, Missing: 0.25, Digits: 5})
+	os.WriteFile(filepath.Join(dir, "orig.csv"), []byte(sv.Orig), 0o644)
+	os.WriteFile(filepath.Join(dir, "stacked.csv"), []byte(sv.Stacked), 0o644)
 	os.WriteFile(filepath.Join(dir, "new.csv"), []byte("id,x1,x2\nA,0,0\nB,1,-1\n"), 0o644)
 	src := `version: 1
 title: imputed survey

@@ -10,6 +10,7 @@ import (
 	"strings"
 	"testing"
 
+	"ordplan/internal/testsurvey"
 	"ordplan/plan"
 )
 
@@ -24,17 +25,8 @@ func chainedFixture(t *testing.T, imputation string) *plan.Plan {
 	var b strings.Builder
 	b.WriteString("y,x,g\n")
 	for i := 0; i < 240; i++ {
-		x := rng.NormFloat64()
-		g := rng.IntN(3)
-		eta := 0.8*x + []float64{0, 0.5, -0.4}[g]
-		u := rng.Float64()
-		y := 1
-		for _, c := range []float64{-0.4, 0.9} {
-			if u > 1/(1+math.Exp(-(c-eta))) {
-				y++
-			}
-		}
-		xs, gs, ys := fmt.Sprintf("%.4f", x), []string{"a", "b", "c"}[g], fmt.Sprint(y)
+		y, x, g := testsurvey.Grouped(rng)
+		xs, gs, ys := fmt.Sprintf("%.4f", x), testsurvey.Levels[g], fmt.Sprint(y)
 		if rng.Float64() < 0.1+0.15*float64(y-1) {
 			xs = ""
 		}

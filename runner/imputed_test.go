@@ -1,7 +1,6 @@
 package runner
 
 import (
-	"fmt"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -11,6 +10,7 @@ import (
 	"strings"
 	"testing"
 
+	"ordplan/internal/testsurvey"
 	"ordplan/plan"
 	"ordplan/runner/fit"
 	"ordplan/runner/impute"
@@ -25,51 +25,10 @@ import (
 // the true values (same) or fresh draws (differ).
 func imputedFixture(t *testing.T, m int, same bool) string {
 	dir := t.TempDir()
-	rng := rand.New(rand.NewPCG(7, 11))
-	n := 300
-	var orig, comp, stack strings.Builder
-	orig.WriteString("y,x1,x2\n")
-	comp.WriteString("y,x1,x2\n")
-	stack.WriteString("imp,y,x1,x2\n")
-	type row struct {
-		y      int
-		x1, x2 float64
-		miss   bool
-	}
-	rows := make([]row, n)
-	for i := range rows {
-		x1 := rng.NormFloat64()
-		x2 := 0.5*x1 + rng.NormFloat64()
-		eta := 0.7*x1 - 0.5*x2
-		u := rng.Float64()
-		y := 1
-		for _, c := range []float64{-0.5, 0.8} {
-			if u > 1/(1+math.Exp(-(c-eta))) {
-				y++
-			}
-		}
-		rows[i] = row{y, x1, x2, rng.Float64() < 0.2}
-		fmt.Fprintf(&comp, "%d,%.6f,%.6f\n", y, x1, x2)
-		if rows[i].miss {
-			fmt.Fprintf(&orig, "%d,%.6f,\n", y, x1)
-			fmt.Fprintf(&stack, "0,%d,%.6f,\n", y, x1)
-		} else {
-			fmt.Fprintf(&orig, "%d,%.6f,%.6f\n", y, x1, x2)
-			fmt.Fprintf(&stack, "0,%d,%.6f,%.6f\n", y, x1, x2)
-		}
-	}
-	for k := 1; k <= m; k++ {
-		for _, r := range rows {
-			x2 := r.x2
-			if r.miss && !same {
-				x2 = 0.5*r.x1 + rng.NormFloat64()
-			}
-			fmt.Fprintf(&stack, "%d,%d,%.6f,%.6f\n", k, r.y, r.x1, x2)
-		}
-	}
-	os.WriteFile(filepath.Join(dir, "orig.csv"), []byte(orig.String()), 0o644)
-	os.WriteFile(filepath.Join(dir, "complete.csv"), []byte(comp.String()), 0o644)
-	os.WriteFile(filepath.Join(dir, "stacked.csv"), []byte(stack.String()), 0o644)
+	sv := testsurvey.Pooling.Imputed(rand.New(rand.NewPCG(7, 11)), testsurvey.ImputedOptions{Rows: 300, Sets: m, Missing: 0.2, Digits: 6, Same: same, Original: true})
+	os.WriteFile(filepath.Join(dir, "orig.csv"), []byte(sv.Orig), 0o644)
+	os.WriteFile(filepath.Join(dir, "complete.csv"), []byte(sv.Complete), 0o644)
+	os.WriteFile(filepath.Join(dir, "stacked.csv"), []byte(sv.Stacked), 0o644)
 	return dir
 }
 

@@ -7,6 +7,7 @@ import (
 	"testing"
 	"time"
 
+	"ordplan/internal/testsurvey"
 	"ordplan/runner/queue/localserver"
 )
 
@@ -36,28 +37,27 @@ func TestPowerThroughQueue(t *testing.T) {
 }
 
 // powerQueuePlan has numeric predictors only.
-const powerQueuePlan = `version: 1
-seed: 9
-data: {file: none.csv}
-outcomes:
-  - column: y
-    categories: [low, mid, high]
-predictors: [a, b]
+var powerQueuePlan = testsurvey.Plan{
+	Seed:       9,
+	Data:       "none.csv",
+	Categories: `[low, mid, high]`,
+	Sections: `predictors: [a, b]
 dictionary:
   a: {values: [0, 1]}
   b: {range: [-4, 4]}
-models: {approaches: [cumulative, adjacent], effects: [parallel, nonparallel]}
-tests: {parallel_lines: [lr]}
-rules:
-  - reject_unconverged: true
+`,
+	Approaches: `[cumulative, adjacent]`,
+	Effects:    `[parallel, nonparallel]`,
+	Rules: `  - reject_unconverged: true
   - choose: {by: bic}
-inference:
-  hypotheses: ["a = 0"]
-assumptions:
-  predictors:
+`,
+	Inference: `  hypotheses: ["a = 0"]
+`,
+	Assumptions: `  predictors:
     b: {mean: 0, sd: 1}
   outcomes:
     y:
       proportions: [0.3, 0.4, 0.3]
       effects: {a: 0.6, b: 0.3}
-`
+`,
+}.YAML()

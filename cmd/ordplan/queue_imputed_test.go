@@ -2,7 +2,6 @@ package main
 
 import (
 	"fmt"
-	"math"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
@@ -10,6 +9,7 @@ import (
 	"testing"
 	"time"
 
+	"ordplan/internal/testsurvey"
 	"ordplan/runner/queue/localserver"
 )
 
@@ -38,16 +38,7 @@ func writeImputedFixture(t *testing.T) string {
 	var weighted strings.Builder
 	weighted.WriteString("y,x,g,w\n")
 	for i := range rows {
-		x := rng.NormFloat64()
-		g := rng.IntN(3)
-		eta := 0.8*x + []float64{0, 0.5, -0.4}[g]
-		u := rng.Float64()
-		y := 1
-		for _, c := range []float64{-0.4, 0.9} {
-			if u > 1/(1+math.Exp(-(c-eta))) {
-				y++
-			}
-		}
+		y, x, g := testsurvey.Grouped(rng)
 		r := row{y: y, x: x, g: g, miss: [3]bool{rng.Float64() < 0.05, rng.Float64() < 0.1+0.1*float64(y-1), rng.Float64() < 0.08}}
 		rows[i] = r
 		cells := []string{fmt.Sprint(y), fmt.Sprintf("%.4f", x), []string{"a", "b", "c"}[g]}

@@ -10,6 +10,7 @@ import (
 	"strings"
 	"testing"
 
+	"ordplan/internal/testsurvey"
 	"ordplan/plan"
 	"ordplan/runner"
 	"ordplan/runner/fit"
@@ -19,13 +20,10 @@ import (
 // column (per unit of the log), a categorical column under sum coding
 // (levels against the reference), an interaction (per design column), a
 // spline (values at points) and a treatment-coded 0/1 categorical.
-const termsPlan = `version: 1
-seed: 913
-data: {file: sim.csv}
-outcomes:
-  - column: y
-    categories: [a, b, c, d]
-categorical:
+var termsPlan = testsurvey.Plan{
+	Seed:       913,
+	Categories: `[a, b, c, d]`,
+	Sections: `categorical:
   g: {levels: [r, s, t], coding: sum}
 predictors:
   - {name: xlog, column: x, log: {shift: 1}}
@@ -38,12 +36,8 @@ dictionary:
   z: {values: [0, 1]}
   w: {range: [-3, 3]}
   g: {}
-models: {approaches: [cumulative], effects: [parallel]}
-tests: {parallel_lines: [lr]}
-rules:
-  - choose: {by: aic}
-assumptions:
-  predictors:
+`,
+	Assumptions: `  predictors:
     x: {mean: 12, sd: 8}
     g: {proportions: [0.4, 0.35, 0.25]}
     z: {proportions: [0.5, 0.5]}
@@ -57,7 +51,8 @@ assumptions:
         z: 0.4
         z&g: {z&g.s: 0.45, z&g.t: -0.35}
         ws: {at: [-1.5, 0, 1.5], values: [0, 0.8, 0.4]}
-`
+`,
+}.YAML()
 
 // simulated is replicate rep of n rows of the plan, as CSV.
 func simulated(t *testing.T, p *plan.Plan, n int, rep uint64) []byte {
@@ -170,24 +165,19 @@ func TestLargeSampleRecoversEveryKindOfTerm(t *testing.T) {
 	}
 }
 
-const generatorPlan = `version: 1
-seed: 4711
-data: {file: sim.csv}
-outcomes:
-  - column: y
-    categories: [a, b, c, d]
-categorical:
+var generatorPlan = testsurvey.Plan{
+	Seed:       4711,
+	Categories: `[a, b, c, d]`,
+	Sections: `categorical:
   h: {levels: [no, yes]}
 predictors: [x, h]
 dictionary:
   x: {range: [-5, 5]}
   h: {}
-models: {approaches: [COMPARISON], effects: [parallel, nonparallel]}
-tests: {parallel_lines: [lr]}
-rules:
-  - choose: {by: aic}
-assumptions:
-  comparison: COMPARISON
+`,
+	Approaches: `[COMPARISON]`,
+	Effects:    `[parallel, nonparallel]`,
+	Assumptions: `  comparison: COMPARISON
   predictors:
     x: {mean: 0.3, sd: 1}
   outcomes:
@@ -196,7 +186,8 @@ assumptions:
       effects: {x: 0.7}
       nonparallel:
         h: [{yes: 0.2}, {yes: 0.6}, {yes: 1.0}]
-`
+`,
+}.YAML()
 
 // Stage and adjacent generating models: a very large sample keeps the
 // stated category shares, and the fit of the same comparison, with h
@@ -220,23 +211,16 @@ func TestStageAndAdjacentGenerators(t *testing.T) {
 	}
 }
 
-const corrPlan = `version: 1
-seed: 99
-data: {file: sim.csv}
-outcomes:
-  - column: y
-    categories: [a, b, c]
-predictors: [u, v, w]
+var corrPlan = testsurvey.Plan{
+	Seed:       99,
+	Categories: `[a, b, c]`,
+	Sections: `predictors: [u, v, w]
 dictionary:
   u: {label: U}
   v: {label: V}
   w: {range: [0, 10]}
-models: {approaches: [cumulative], effects: [parallel]}
-tests: {parallel_lines: [lr]}
-rules:
-  - choose: {by: aic}
-assumptions:
-  predictors:
+`,
+	Assumptions: `  predictors:
     u: {mean: 5, sd: 2}
     v: {mean: -1, sd: 0.5}
   correlations:
@@ -244,7 +228,8 @@ assumptions:
     - {between: [v, w], r: -0.3}
   outcomes:
     y: {proportions: [0.3, 0.4, 0.3], effects: {u: 0.2}}
-`
+`,
+}.YAML()
 
 // Stated correlations: two normal columns without a range get the stated
 // Pearson correlation (the copula keeps normal margins), within 4 of its
@@ -303,30 +288,24 @@ func TestCorrelationsRecovered(t *testing.T) {
 	}
 }
 
-const subsetPlan = `version: 1
-seed: 5150
-data: {file: sim.csv}
-outcomes:
-  - column: y
-    categories: [a, b, c]
-predictors: [x]
+var subsetPlan = testsurvey.Plan{
+	Seed:       5150,
+	Categories: `[a, b, c]`,
+	Sections: `predictors: [x]
 subset:
   - {column: age, at_least: 30}
 dictionary:
   x: {values: [0, 1]}
   age: {label: Age, unit: years}
-models: {approaches: [cumulative], effects: [parallel]}
-tests: {parallel_lines: [lr]}
-rules:
-  - choose: {by: aic}
-assumptions:
-  predictors:
+`,
+	Assumptions: `  predictors:
     age: {mean: 40, sd: 15}
   correlations:
     - {between: [x, age], r: 0.5}
   outcomes:
     y: {proportions: [0.3, 0.4, 0.3], effects: {x: 0.5}}
-`
+`,
+}.YAML()
 
 // A plan with a subset: the column the subset reads (not a predictor) is
 // simulated, and the ordinary reader applies the condition to the

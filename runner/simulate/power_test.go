@@ -7,33 +7,32 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
+	"ordplan/internal/testsurvey"
 	"ordplan/runner"
 )
 
-const waldPlan = `version: 1
-seed: 4242
-data: {file: none.csv}
-outcomes:
-  - column: y
-    categories: ["no", "yes"]
-predictors: [x]
+var waldPlan = testsurvey.Plan{
+	Seed:       4242,
+	Data:       "none.csv",
+	Categories: `["no", "yes"]`,
+	Sections: `predictors: [x]
 dictionary:
   x: {values: [0, 1]}
-models: {approaches: [cumulative], effects: [parallel]}
-tests: {parallel_lines: [wald]}
-rules:
-  - reject_unconverged: true
+`,
+	Test: "wald",
+	Rules: `  - reject_unconverged: true
   - choose: {by: aic}
-inference:
-  hypotheses: ["x = 0"]
-assumptions:
-  predictors:
+`,
+	Inference: `  hypotheses: ["x = 0"]
+`,
+	Assumptions: `  predictors:
     x: {proportions: [0.5, 0.5]}
   outcomes:
     y:
       proportions: [0.6, 0.4]
       effects: {x: 0.5}
-`
+`,
+}.YAML()
 
 // With two categories and one 0/1 predictor the plan's model is a logistic
 // regression, and the power of the Wald test of its slope (the log odds

@@ -8,27 +8,22 @@ import (
 	"strings"
 	"testing"
 
+	"ordplan/internal/testsurvey"
 	"ordplan/plan"
 	"ordplan/runner"
 	"ordplan/runner/fit"
 )
 
-const recoverPlan = `version: 1
-seed: 77
-data: {file: sim.csv}
-outcomes:
-  - column: y
-    categories: [low, mid, high, top]
-predictors: [x, g]
+var recoverPlan = testsurvey.Plan{
+	Seed:       77,
+	Categories: `[low, mid, high, top]`,
+	Sections: `predictors: [x, g]
 dictionary:
   x: {range: [-6, 6]}
   g: {values: [0, 1]}
-models: {approaches: [cumulative], effects: [parallel, nonparallel]}
-tests: {parallel_lines: [lr]}
-rules:
-  - choose: {by: aic}
-assumptions:
-  predictors:
+`,
+	Effects: `[parallel, nonparallel]`,
+	Assumptions: `  predictors:
     x: {mean: 0.5, sd: 1}
     g: {proportions: [0.4, 0.6]}
   outcomes:
@@ -36,7 +31,8 @@ assumptions:
       proportions: [0.2, 0.3, 0.35, 0.15]
       effects: {x: 0.7}
       nonparallel: {g: [0.2, 0.5, 0.9]}
-`
+`,
+}.YAML()
 
 func parsePlan(t *testing.T, src string) *plan.Plan {
 	t.Helper()

@@ -6,32 +6,28 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"ordplan/internal/testsurvey"
 )
 
 // subsetPopPlan: the subset (age >= 30) keeps part of the simulated rows,
 // and age moves the outcome; the proportions describe the analysed
 // population, the rows the subset keeps.
-const subsetPopPlan = `version: 1
-seed: 4242
-data: {file: sim.csv}
-outcomes:
-  - column: y
-    categories: [a, b, c]
-predictors: [age]
+var subsetPopPlan = testsurvey.Plan{
+	Seed:       4242,
+	Categories: `[a, b, c]`,
+	Sections: `predictors: [age]
 subset:
   - {column: age, at_least: 30}
 dictionary:
   age: {range: [0, 100]}
-models: {approaches: [cumulative], effects: [parallel]}
-tests: {parallel_lines: [lr]}
-rules:
-  - choose: {by: aic}
-assumptions:
-  predictors:
+`,
+	Assumptions: `  predictors:
     age: {mean: 35, sd: 15}
   outcomes:
     y: {proportions: [0.5, 0.3, 0.2], effects: {age: 0.08}}
-`
+`,
+}.YAML()
 
 // TestProportionsHoldAfterSubset: the stated proportions hold among the
 // rows the subset keeps (the population the plan analyses), within the
@@ -86,24 +82,17 @@ func TestSubsetKeepsTooFewRows(t *testing.T) {
 // droppedLevelPlan: the level "east" of site is so rare (1 in 100000)
 // that the calibration sample of this seed has none, and the plan drops
 // a level no row has.
-const droppedLevelPlan = `version: 1
-seed: 17
-data: {file: sim.csv}
-outcomes:
-  - column: y
-    categories: [a, b, c]
-categorical:
+var droppedLevelPlan = testsurvey.Plan{
+	Seed:       17,
+	Categories: `[a, b, c]`,
+	Sections: `categorical:
   site: {levels: [north, south, east], unobserved: drop}
 predictors: [site, x, {interact: [x, site]}]
 dictionary:
   site: {}
   x: {range: [-3, 3]}
-models: {approaches: [cumulative], effects: [parallel]}
-tests: {parallel_lines: [lr]}
-rules:
-  - choose: {by: aic}
-assumptions:
-  predictors:
+`,
+	Assumptions: `  predictors:
     x: {mean: 0, sd: 1}
     site: {proportions: [0.499995, 0.499995, 0.00001]}
   outcomes:
@@ -112,7 +101,8 @@ assumptions:
       effects:
         site: {south: 0.4, east: 0.9}
         x: 0.5
-`
+`,
+}.YAML()
 
 // TestEffectOfDroppedLevel: an effect stated for a level that the
 // simulated rows lack (so the design drops its column) is refused with
