@@ -169,6 +169,11 @@ type Result struct {
 	// PhiOther: for constraint groups whose slopes vanish in equation 1 at
 	// the maximum (StatusNotIdentified), phi normalized by another equation.
 	PhiOther []PhiNormalization
+
+	// rank: the sums of the rank check of the rows fitted, which a refit
+	// of the same rows with indicator columns (LipsitzTest) starts from
+	// (nil for fits made elsewhere, such as on a queue's workers).
+	rank *rankSums
 }
 
 // Separation describes a fit with no finite maximum.
@@ -203,16 +208,34 @@ func inputErr(format string, a ...any) error { return &InputError{fmt.Sprintf(fo
 
 // Fit estimates model m on data d.
 func Fit(d *Data, m Model, opt Options) (*Result, error) {
-	if err := d.validate(); err != nil {
+	return fitFrom(d, m, opt, nil)
+}
+
+// fitFrom is Fit, its rank check taking the sums of X's columns from base
+// when base was formed on the rows of d.
+func fitFrom(d *Data, m Model, opt Options, base *rankSums) (*Result, error) {
+	// Sums of a rank check come from a fit, after its data were validated:
+	// X's values were found finite then.
+	if err := d.validateRows(base.of(d)); err != nil {
 		return nil, err
 	}
-	return fitValid(d, m, opt, &shared{})
+	return fitValid(d, m, opt, &shared{base: base})
 }
 
 // fitValid is Fit on data that passed validate; sh holds what the fits
 // on these data share (the rank check, the compressed design, and in a
-// grid the fitted models a constrained fit builds its starts from).
+// grid the fitted models a constrained fit builds its starts from). The
+// result keeps the sums of the rank check.
 func fitValid(d *Data, m Model, opt Options, sh *shared) (*Result, error) {
+	res, err := fitChecked(d, m, opt, sh)
+	if res != nil {
+		res.rank = sh.sums
+	}
+	return res, err
+}
+
+// fitChecked is fitValid but for the sums it keeps.
+func fitChecked(d *Data, m Model, opt Options, sh *shared) (*Result, error) {
 	ly, err := newLayout(m, d.J, d.Predictors)
 	if err != nil {
 		return nil, &InputError{err.Error()}
@@ -292,7 +315,11 @@ func (d *Data) design() *design {
 	return des
 }
 
-func (d *Data) validate() error {
+func (d *Data) validate() error { return d.validateRows(false) }
+
+// validateRows is validate, which does not look for non-finite values in X
+// when finiteX says that they were looked for.
+func (d *Data) validateRows(finiteX bool) error {
 	n, K := len(d.Y), d.width()
 	if d.J < 2 {
 		return inputErr("the outcome needs at least 2 categories, got %d", d.J)
@@ -329,8 +356,10 @@ func (d *Data) validate() error {
 			return inputErr("row %d: offset %g is not finite", i+1, d.Offset[i])
 		}
 	}
-	if i := firstNonFinite(d.X); i >= 0 {
-		return inputErr("row %d: predictor %q has the non-finite value %g", i/K+1, d.Predictors[i%K], d.X[i])
+	if !finiteX {
+		if i := firstNonFinite(d.X); i >= 0 {
+			return inputErr("row %d: predictor %q has the non-finite value %g", i/K+1, d.Predictors[i%K], d.X[i])
+		}
 	}
 	lv := d.categories()
 	for c, n := range counts {

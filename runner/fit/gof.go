@@ -1,8 +1,11 @@
 package fit
 
 import (
+	"cmp"
 	"fmt"
+	"maps"
 	"math"
+	"slices"
 	"sort"
 	"strings"
 )
@@ -68,7 +71,7 @@ func GroupByScore(d *Data, r *Result, groups int) (*ScoreGroups, error) {
 		order[i] = i
 	}
 	raw := make([]int, n) // the group of each row, renumbered in place below
-	cutByScore(order, score, w, groups, raw)
+	cutByScore(order, score, d.Weights, groups, raw)
 	order = nil
 	// Renumber the groups that received weight: 0, 1, ...
 	used := make([]float64, groups)
@@ -152,7 +155,7 @@ func LipsitzTest(d *Data, r *Result, groups int, opt Options) (*Lipsitz, error) 
 	}
 	opt.Start = start
 	opt.Sandwich = nil
-	full, err := Fit(ad, am, opt)
+	full, err := fitFrom(ad, am, opt, r.rank) // X's rank sums from the fit of r
 	if err != nil {
 		if strings.Contains(err.Error(), "collinear") {
 			out.Test = failedTest("lipsitz", "not defined for these data: the score groups coincide with values of the predictors (too few distinct predictor patterns for %d groups), so their indicators are a combination of the predictors (%v)", G, err)
@@ -190,8 +193,7 @@ func scoresOf(d *Data, r *Result, pr *problem) (probs, score []float64) {
 				off = d.Offset[i]
 			}
 			p := probs[i*J : (i+1)*J]
-			pr.linearRow(c, d.X[i*K:(i+1)*K], off, L)
-			pr.ker.probs(L, p)
+			pr.rowProbs(c, d.X[i*K:(i+1)*K], off, L, p)
 			for j, v := range p {
 				score[i] += float64(j+1) * v
 			}
@@ -200,11 +202,23 @@ func scoresOf(d *Data, r *Result, pr *problem) (probs, score []float64) {
 	return probs, score
 }
 
-// cutByScore sorts the rows listed in order by score (stably) and cuts
-// them into groups of about equal weight, writing each row's group
-// (0..groups-1) into out: a run of equal scores goes, whole, to the group
-// of its weighted midpoint, so groups may stay empty.
-func cutByScore(order []int, score []float64, w func(int) float64, groups int, out []int) {
+// cutByScore cuts the rows listed in order into groups of about equal
+// weight by score (weights: nil for 1 each), writing each row's group
+// (0..groups-1) into out: the rows sorted by score, a run of equal scores
+// goes, whole, to the group of its weighted midpoint (groupOf), so groups
+// may stay empty. order may be left in another order. Long lists of rows
+// of weight 1 are cut by counts (cutByCounts), without a sort.
+func cutByScore(order []int, score []float64, weights []float64, groups int, out []int) {
+	if weights == nil && len(order) >= cutByCountsFrom && !slices.ContainsFunc(order, func(i int) bool { return math.IsNaN(score[i]) }) {
+		cutByCounts(order, score, groups, out)
+		return
+	}
+	w := func(i int) float64 {
+		if weights == nil {
+			return 1
+		}
+		return weights[i]
+	}
 	sortByScore(order, score)
 	total := 0.0
 	for _, i := range order {
@@ -218,14 +232,110 @@ func cutByScore(order []int, score []float64, w func(int) float64, groups int, o
 			tw += w(order[b])
 			b++
 		}
-		g := 0
-		if total > 0 {
-			g = min(groups-1, int(math.Floor(float64(groups)*(cum+tw/2)/total)))
-		}
+		g := groupOf(cum, tw, total, groups)
 		for c := a; c < b; c++ {
 			out[order[c]] = g
 		}
 		cum += tw
+		a = b
+	}
+}
+
+// groupOf is the group of a run of equal scores of weight tw after
+// rows of weight cum, of total: that of its weighted midpoint.
+func groupOf(cum, tw, total float64, groups int) int {
+	if total <= 0 {
+		return 0
+	}
+	return min(groups-1, int(math.Floor(float64(groups)*(cum+tw/2)/total)))
+}
+
+// cutByCountsFrom is the number of rows from which cutByScore cuts rows
+// of weight 1 by counts.
+const cutByCountsFrom = 1 << 12
+
+// cutByCounts is cutByScore for rows of weight 1 and scores that are not
+// NaN. A run's group depends only on the number of rows of lower score
+// (cum) and of its score (tw), and grows with the score; so the rows are
+// counted in buckets of keys (the scores' bits in order, orderedBits): a
+// bucket whose first and last possible midpoints fall in one group gives
+// that group to all its rows, and only the rows of the few buckets that
+// straddle a cut are sorted (resolveRuns). Counts are exact, so the groups
+// are those of the sort, row for row.
+func cutByCounts(order []int, score []float64, groups int, out []int) {
+	keys := make([]uint64, len(order))
+	for j, i := range order {
+		keys[j] = orderedBits(score[i])
+	}
+	total := float64(len(order))
+	pos := make([]int32, len(order))
+	for j := range pos {
+		pos[j] = int32(j)
+	}
+	var resolve func(pos []int32, cum int)
+	resolve = func(pos []int32, cum int) {
+		lo, hi := keys[pos[0]], keys[pos[0]]
+		for _, p := range pos {
+			lo, hi = min(lo, keys[p]), max(hi, keys[p])
+		}
+		if len(pos) <= 1<<10 || lo == hi {
+			resolveRuns(pos, keys, order, cum, total, groups, out)
+			return
+		}
+		// Buckets of keys (key - lo) >> shift, at most 1<<16 of them.
+		const bits = 16
+		shift := 0
+		for (hi-lo)>>shift >= 1<<bits {
+			shift++
+		}
+		count := make([]int, ((hi-lo)>>shift)+2)
+		for _, p := range pos {
+			count[(keys[p]-lo)>>shift+1]++
+		}
+		// count[b]: rows before bucket b; group[b]: the bucket's group, or
+		// -1 when it straddles a cut.
+		group := make([]int, len(count)-1)
+		for b := range group {
+			count[b+1] += count[b]
+			first, last := float64(cum+count[b]), float64(cum+count[b+1])
+			group[b] = groupOf(first, 1, total, groups)
+			if count[b+1] > count[b] && groupOf(last-1, 1, total, groups) != group[b] {
+				group[b] = -1
+			}
+		}
+		var straddle map[int][]int32
+		for _, p := range pos {
+			b := int((keys[p] - lo) >> shift)
+			if g := group[b]; g >= 0 {
+				out[order[p]] = g
+				continue
+			}
+			if straddle == nil {
+				straddle = map[int][]int32{}
+			}
+			straddle[b] = append(straddle[b], p)
+		}
+		for _, b := range slices.Sorted(maps.Keys(straddle)) {
+			resolve(straddle[b], cum+count[b])
+		}
+	}
+	resolve(pos, 0)
+}
+
+// resolveRuns gives the rows at positions pos of order (keys: their
+// scores' ordered bits), after cum rows of lower score, the groups of
+// their runs of equal scores.
+func resolveRuns(pos []int32, keys []uint64, order []int, cum int, total float64, groups int, out []int) {
+	slices.SortFunc(pos, func(a, b int32) int { return cmp.Compare(keys[a], keys[b]) })
+	for a := 0; a < len(pos); {
+		b := a
+		for b < len(pos) && keys[pos[b]] == keys[pos[a]] {
+			b++
+		}
+		g := groupOf(float64(cum+a), float64(b-a), total, groups)
+		for _, p := range pos[a:b] {
+			out[order[p]] = g
+		}
 		a = b
 	}
 }

@@ -15,12 +15,15 @@ type shared struct {
 	rankOnce sync.Once
 	rankSD   []float64
 	rankErr  error
-	desOnce  sync.Once
-	des      *design
-	subOnce  sync.Once
-	sub      *design
-	mu       sync.Mutex
-	fitted   map[string]gridFit // by modelKey, options of the auxiliary fits
+	// base: sums of an earlier rank check of the same rows, which the
+	// check takes X's sums from (LipsitzTest); sums: this check's.
+	base, sums *rankSums
+	desOnce    sync.Once
+	des        *design
+	subOnce    sync.Once
+	sub        *design
+	mu         sync.Mutex
+	fitted     map[string]gridFit // by modelKey, options of the auxiliary fits
 }
 
 // gridFit is a finished fit as a later fit may read it.
@@ -31,7 +34,7 @@ type gridFit struct {
 
 // rank is d.checkRank, made once (it does not depend on the model).
 func (sh *shared) rank(d *Data, workers int) ([]float64, error) {
-	sh.rankOnce.Do(func() { sh.rankSD, sh.rankErr = d.checkRank(workers) })
+	sh.rankOnce.Do(func() { sh.rankSD, sh.sums, sh.rankErr = d.checkRankWith(workers, sh.base) })
 	return sh.rankSD, sh.rankErr
 }
 

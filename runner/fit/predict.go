@@ -27,7 +27,14 @@ type Prediction struct {
 // probsAt fills p (length J) with the category probabilities of one row x
 // (length K) with offset off, at parameters theta.
 func (pr *problem) probsAt(theta []float64, x []float64, off float64, p []float64) {
-	pr.ker.probs(pr.rowLinear(theta, x, off), p)
+	pr.rowProbs(pr.coefs(theta), x, off, make([]float64, pr.q), p)
+}
+
+// rowProbs is probsAt at the coefficients c of the parameters, with L
+// (length J-1) to hold the row's linear predictors.
+func (pr *problem) rowProbs(c *coefs, x []float64, off float64, L, p []float64) {
+	pr.linearRow(c, x, off, L)
+	pr.ker.probs(L, p)
 }
 
 // dprobsDL fills D (J x (J-1)) with dP_j/dL_m at L.

@@ -93,7 +93,7 @@ func PulkstenisRobinsonTest(d *Data, r *Result, pattern []int, labels []string, 
 			continue
 		}
 		t.Patterns++
-		cutByScore(idx, score, w, 2, half)
+		cutByScore(idx, score, d.Weights, 2, half)
 		lower, upper := false, false
 		for _, i := range idx {
 			lower = lower || half[i] == 0

@@ -4,6 +4,7 @@ import (
 	"math"
 	"strings"
 	"sync"
+	"weak"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -25,23 +26,38 @@ func CheckDesign(d *Data) error {
 // the sum of weights). The sums over the rows take two passes on workers
 // goroutines (columnSums).
 func (d *Data) checkRank(workers int) ([]float64, error) {
+	sd, _, err := d.checkRankWith(workers, nil)
+	return sd, err
+}
+
+// checkRankWith is checkRank. base, when it holds the sums of a check of
+// data with the same rows (X and weights) and no indicator columns, saves
+// summing X's columns again: only d's indicator columns are summed (the
+// refit of LipsitzTest), which gives the same sums, bit for bit. It also
+// returns the sums of this check for later ones (nil when d has indicator
+// columns).
+func (d *Data) checkRankWith(workers int, base *rankSums) ([]float64, *rankSums, error) {
 	K := len(d.Predictors)
 	if K == 0 {
-		return nil, nil
+		return nil, nil, nil
+	}
+	var base1, base2 *colSums
+	if base.of(d) {
+		base1, base2 = base.first, base.second
 	}
 	// Units: squares and cross-products of a predictor must be ordinary
 	// floating-point numbers for the information to be exact. Within
 	// [minScale, maxScale] the unit-diagonal scaling of the engine gives
 	// the same fit in any units (tested at 1e-100 and 1e100); outside, the
 	// predictor is refused with the factor that brings it back.
-	cs := d.columnSums(workers, nil, 0)
+	cs := d.columnSums(workers, nil, 0, base1)
 	for k := 0; k < K; k++ {
 		switch maxAbs := cs.maxAbs[k]; {
 		case maxAbs > maxScale:
-			return nil, inputErr("predictor %q has the value %g in row %d: too large to fit (values up to %g can be fitted exactly); rescale the predictor (for example divide it by 1e%d)",
+			return nil, nil, inputErr("predictor %q has the value %g in row %d: too large to fit (values up to %g can be fitted exactly); rescale the predictor (for example divide it by 1e%d)",
 				d.Predictors[k], d.at(cs.at[k], k), cs.at[k]+1, maxScale, int(math.Floor(math.Log10(maxAbs))))
 		case maxAbs > 0 && maxAbs < minScale:
-			return nil, inputErr("predictor %q has values no larger than %g in absolute value: too small to fit exactly (the largest value must be at least %g); rescale the predictor (for example multiply it by 1e%d)",
+			return nil, nil, inputErr("predictor %q has values no larger than %g in absolute value: too small to fit exactly (the largest value must be at least %g); rescale the predictor (for example multiply it by 1e%d)",
 				d.Predictors[k], maxAbs, minScale, -int(math.Floor(math.Log10(maxAbs))))
 		}
 	}
@@ -49,13 +65,14 @@ func (d *Data) checkRank(workers int) ([]float64, error) {
 	for k := range mean {
 		mean[k] = cs.sum[k] / cs.tot
 	}
-	tot, C := cs.tot, d.columnSums(workers, mean, cs.tot).cross
+	second := d.columnSums(workers, mean, cs.tot, base2)
+	tot, C := cs.tot, second.cross
 	sd := make([]float64, K)
 	for k := 0; k < K; k++ {
 		sd[k] = math.Sqrt(C[k*K+k] / tot)
 		scale := math.Max(math.Abs(mean[k]), sd[k])
 		if sd[k] == 0 || sd[k] <= 1e-12*scale {
-			return nil, inputErr("predictor %q is constant (every row has %g): it cannot be estimated alongside the cutpoints; remove it", d.Predictors[k], mean[k])
+			return nil, nil, inputErr("predictor %q is constant (every row has %g): it cannot be estimated alongside the cutpoints; remove it", d.Predictors[k], mean[k])
 		}
 	}
 	corr := mat.NewSymDense(K, nil)
@@ -91,7 +108,7 @@ func (d *Data) checkRank(workers int) ([]float64, error) {
 								with = append(with, d.Predictors[a])
 							}
 						}
-						return nil, inputErr("predictor %q is perfectly collinear with %s (and the constant): remove one of them", d.Predictors[k], strings.Join(quoteAll(with), ", "))
+						return nil, nil, inputErr("predictor %q is perfectly collinear with %s (and the constant): remove one of them", d.Predictors[k], strings.Join(quoteAll(with), ", "))
 					}
 				}
 			}
@@ -103,7 +120,41 @@ func (d *Data) checkRank(workers int) ([]float64, error) {
 			sd[k] = 1
 		}
 	}
-	return sd, nil
+	return sd, d.keepSums(cs, second), nil
+}
+
+// rankSums are the two passes' sums of a rank check of data without
+// indicator columns, with what identifies the rows they were formed on (the
+// arrays X and Weights, held weakly so that a fit keeping them does not
+// keep its data alive).
+type rankSums struct {
+	x, w          weak.Pointer[float64]
+	n, width      int
+	first, second *colSums
+}
+
+// keepSums is the sums of d's rank check for later checks of the same rows
+// (nil when d has indicator columns, whose sums those checks form again).
+func (d *Data) keepSums(first, second *colSums) *rankSums {
+	if d.ind != nil {
+		return nil
+	}
+	return &rankSums{x: weak.Make(firstOf(d.X)), w: weak.Make(firstOf(d.Weights)), n: d.N(), width: d.width(), first: first, second: second}
+}
+
+// of reports whether s were formed on the rows of d (the same X and
+// weights arrays, of the same shape).
+func (s *rankSums) of(d *Data) bool {
+	return s != nil && s.n == d.N() && s.width == d.width() &&
+		s.x == weak.Make(firstOf(d.X)) && s.w == weak.Make(firstOf(d.Weights))
+}
+
+// firstOf is a pointer to the first element of v (nil when v is empty).
+func firstOf(v []float64) *float64 {
+	if len(v) == 0 {
+		return nil
+	}
+	return &v[0]
 }
 
 // sumStripes is the number of runs of rows whose sums columnSums forms
@@ -131,8 +182,11 @@ type colSums struct {
 // are taken a block at a time, column-major, in sumStripes runs summed in
 // order. Indicator columns (Data.ind) are not written out: their sums are
 // the weights of their groups, and their centred cross-products follow
-// from each group's sums of the other columns (indicatorCross).
-func (d *Data) columnSums(workers int, mean []float64, tot float64) *colSums {
+// from each group's sums of the other columns (indicatorCross). base, when
+// not nil, holds the same pass's sums of X's columns (from data with the
+// same rows and no indicators): they are taken from there, and only the
+// indicators' sums are formed.
+func (d *Data) columnSums(workers int, mean []float64, tot float64, base *colSums) *colSums {
 	n, K, w0 := d.N(), len(d.Predictors), d.width()
 	G := K - w0
 	nb := (n + blockRows - 1) / blockRows
@@ -148,36 +202,45 @@ func (d *Data) columnSums(workers int, mean []float64, tot float64) *colSums {
 			c.cross = make([]float64, K*K)
 			c.grp, c.all = make([]float64, G*w0), make([]float64, w0)
 		}
-		u, _ := bufs.Get().([]float64)
-		if u == nil {
-			u = make([]float64, blockRows*w0)
+		var u []float64
+		if base == nil {
+			u, _ = bufs.Get().([]float64)
+			if u == nil {
+				u = make([]float64, blockRows*w0)
+			}
+			defer bufs.Put(u)
 		}
-		defer bufs.Put(u)
 		for b := st * per; b < min(nb, (st+1)*per); b++ {
 			lo := b * blockRows
 			rows := min(lo+blockRows, n) - lo
-			cols := u[:rows*w0]
-			d.columns(lo, rows, cols)
 			var w []float64
 			if d.Weights != nil {
 				w = d.Weights[lo : lo+rows]
 			}
 			if mean == nil {
-				c.addSums(cols, rows, lo, w)
+				if base == nil {
+					cols := u[:rows*w0]
+					d.columns(lo, rows, cols)
+					c.addSums(cols, rows, lo, w)
+				}
 				if G > 0 {
 					c.addGroups(d.ind.group[lo:lo+rows], lo, w, w0)
 				}
 				continue
 			}
-			for k := 0; k < w0; k++ {
-				v := cols[k*rows : (k+1)*rows]
-				for i := range v {
-					v[i] -= mean[k]
+			if base == nil {
+				cols := u[:rows*w0]
+				d.columns(lo, rows, cols)
+				for k := 0; k < w0; k++ {
+					v := cols[k*rows : (k+1)*rows]
+					for i := range v {
+						v[i] -= mean[k]
+					}
 				}
+				symCross(c.cross, K, cols, w0, rows, w)
 			}
-			symCross(c.cross, K, cols, w0, rows, w)
 			if G > 0 {
-				c.addGroupCross(d.ind.group[lo:lo+rows], cols, rows, w, w0)
+				c.addGroupCross(d.ind.group[lo:lo+rows], d.X[lo*w0:(lo+rows)*w0], mean, w, w0)
 			}
 		}
 		parts[st] = c
@@ -195,6 +258,9 @@ func (d *Data) columnSums(workers int, mean []float64, tot float64) *colSums {
 			}
 		}
 	}
+	if base != nil {
+		total.fromBase(base, w0, K)
+	}
 	if mean != nil {
 		if G > 0 {
 			total.indicatorCross(mean, tot, w0, G)
@@ -202,6 +268,21 @@ func (d *Data) columnSums(workers int, mean []float64, tot float64) *colSums {
 		mirrorLower(total.cross, K)
 	}
 	return total
+}
+
+// fromBase takes the sums of X's w0 columns (of K) from base, the same
+// pass over data with the same rows and no indicator columns.
+func (c *colSums) fromBase(base *colSums, w0, K int) {
+	if c.cross == nil {
+		c.tot = base.tot
+		copy(c.sum, base.sum[:w0])
+		copy(c.maxAbs, base.maxAbs[:w0])
+		copy(c.at, base.at[:w0])
+		return
+	}
+	for a := 0; a < w0; a++ {
+		copy(c.cross[a*K:a*K+w0], base.cross[a*w0:(a+1)*w0])
+	}
 }
 
 // addGroups adds a block's indicator columns (each row's group; first row
@@ -224,23 +305,29 @@ func (c *colSums) addGroups(group []int, lo int, w []float64, w0 int) {
 	}
 }
 
-// addGroupCross adds a block's weighted centred columns of X (cols,
-// column-major) to the sums of each row's group and of every row.
-func (c *colSums) addGroupCross(group []int, cols []float64, rows int, w []float64, w0 int) {
-	for b := 0; b < w0; b++ {
-		v := cols[b*rows : (b+1)*rows]
-		s := 0.0
-		for i, x := range v {
+// addGroupCross adds a block's weighted columns of X less their means
+// (x: the block's rows, row-major) to the sums of each row's group and of
+// every row. Each sum takes the rows in order, as a column-major loop would.
+func (c *colSums) addGroupCross(group []int, x, mean, w []float64, w0 int) {
+	s := make([]float64, w0)
+	for i, g := range group {
+		row := x[i*w0 : (i+1)*w0]
+		var grp []float64
+		if g > 0 {
+			grp = c.grp[(g-1)*w0 : g*w0]
+		}
+		for b, v := range row {
+			v -= mean[b]
 			if w != nil {
-				x *= w[i]
+				v *= w[i]
 			}
-			s += x
-			if g := group[i]; g > 0 {
-				c.grp[(g-1)*w0+b] += x
+			s[b] += v
+			if grp != nil {
+				grp[b] += v
 			}
 		}
-		c.all[b] += s
 	}
+	addTo(c.all, s)
 }
 
 // indicatorCross fills the lower-triangle rows of the indicator columns in

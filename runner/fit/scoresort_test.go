@@ -117,6 +117,20 @@ func TestIndicatorsAsGroups(t *testing.T) {
 				t.Errorf("%s: SD of %s %.17g held, %.17g written out", c.name, names[k], sdHeld[k], sdDense[k])
 			}
 		}
+		// Taking X's sums from the check of the rows alone (as the refit of
+		// LipsitzTest does) gives the same SDs, bit for bit; sums of other
+		// rows are not taken.
+		_, base, _ := d.checkRankWith(0, nil)
+		if !base.of(held) {
+			t.Fatalf("%s: the sums of the rows are not taken for the same rows with indicators", c.name)
+		}
+		if other := (&Data{Y: d.Y, J: d.J, X: slices.Clone(d.X), Weights: d.Weights, Predictors: names, ind: held.ind}); base.of(other) {
+			t.Fatalf("%s: the sums of the rows are taken for a copy of X", c.name)
+		}
+		sdBase, _, errB := held.checkRankWith(0, base)
+		if errB != nil || !slices.Equal(sdBase, sdHeld) {
+			t.Errorf("%s: rank check from the rows' sums: %v %v, summed again: %v", c.name, sdBase, errB, sdHeld)
+		}
 		for _, k := range []int{-1, 0, K} { // all parallel; a predictor or an indicator nonparallel
 			m := Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(K+G-1, Parallel)}
 			if k >= 0 {
@@ -143,6 +157,9 @@ func TestIndicatorsAsGroups(t *testing.T) {
 		if err == nil || !strings.Contains(err.Error(), "collinear") {
 			t.Errorf("%s: indicator equal to %s: got %v", c.name, c.preds[1], err)
 		}
+		if _, errB := fitFrom(one, Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(K+1, Parallel)}, Options{}, base); errB == nil || errB.Error() != err.Error() {
+			t.Errorf("%s: from the rows' sums: %v, summed again: %v", c.name, errB, err)
+		}
 		oneDense := &Data{Y: d.Y, J: d.J, Weights: d.Weights, Predictors: one.Predictors, X: make([]float64, n*(K+1))}
 		for i := 0; i < n; i++ {
 			copy(oneDense.X[i*(K+1):], d.X[i*K:(i+1)*K])
@@ -150,6 +167,96 @@ func TestIndicatorsAsGroups(t *testing.T) {
 		}
 		if _, errD := Fit(oneDense, Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(K+1, Parallel)}, Options{}); err == nil || errD == nil || err.Error() != errD.Error() {
 			t.Errorf("%s: held %v, written out %v", c.name, err, errD)
+		}
+	}
+}
+
+// TestRankSumsFromBase: on rows enough for every stripe of the rank
+// check's sums (generated, seeded), with and without weights, the check of
+// the rows with indicator columns taking X's sums from the check of the
+// rows alone gives the SDs of the check that sums everything, bit for bit.
+func TestRankSumsFromBase(t *testing.T) {
+	rng := rand.New(rand.NewPCG(19, 5))
+	n, K, G := 70000, 5, 6
+	d := &Data{J: 3, Y: make([]int, n), X: make([]float64, n*K)}
+	for k := 0; k < K; k++ {
+		d.Predictors = append(d.Predictors, fmt.Sprintf("x%d", k+1))
+	}
+	group := make([]int, n)
+	for i := 0; i < n; i++ {
+		d.Y[i] = rng.IntN(3)
+		for k := 0; k < K; k++ {
+			d.X[i*K+k] = 1000*float64(k) + rng.NormFloat64()
+		}
+		group[i] = rng.IntN(G)
+	}
+	weighted := *d
+	weighted.Weights = make([]float64, n)
+	for i := range weighted.Weights {
+		weighted.Weights[i] = rng.ExpFloat64()
+	}
+	for _, d := range []*Data{d, &weighted} {
+		held := &Data{Y: d.Y, J: d.J, X: d.X, Weights: d.Weights, Predictors: slices.Clone(d.Predictors), ind: &indicators{group: group, count: G - 1}}
+		for g := 1; g < G; g++ {
+			held.Predictors = append(held.Predictors, fmt.Sprintf("g%d", g))
+		}
+		_, base, err := d.checkRankWith(0, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		sdAll, errAll := held.checkRank(0)
+		sdBase, _, errBase := held.checkRankWith(0, base)
+		if errAll != nil || errBase != nil || !slices.Equal(sdAll, sdBase) {
+			t.Errorf("weights %t: from the rows' sums %v %v, summed again %v %v", d.Weights != nil, sdBase, errBase, sdAll, errAll)
+		}
+	}
+}
+
+// TestCutByCounts: rows of weight 1 cut by counts (no weights) get the
+// groups of the sort with weights of 1 given, row for row: scores spread
+// out, clustered in a narrow range with far outliers, heavily tied at the
+// cuts, -0 against 0, and a subset of the rows; 2 and 10 groups.
+func TestCutByCounts(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 11))
+	for _, n := range []int{cutByCountsFrom, 5000, 60000} {
+		for kind := 0; kind < 4; kind++ {
+			score := make([]float64, n)
+			for i := range score {
+				switch kind {
+				case 0:
+					score[i] = 1 + 4*rng.Float64()
+				case 1: // a narrow cluster and far outliers
+					score[i] = 2 + 1e-9*rng.Float64()
+					if rng.IntN(1000) == 0 {
+						score[i] = 1 + 4*rng.Float64()
+					}
+				case 2: // few values, long runs at every cut
+					score[i] = float64(1 + rng.IntN(13))
+				default:
+					score[i] = float64(rng.IntN(3)-1) * rng.Float64()
+					if rng.IntN(7) == 0 {
+						score[i] = math.Copysign(0, -1)
+					}
+				}
+			}
+			for _, every := range []int{1, 2} {
+				var order []int
+				for i := 0; i < n; i += every {
+					order = append(order, i)
+				}
+				ones := make([]float64, n)
+				for i := range ones {
+					ones[i] = 1
+				}
+				for _, groups := range []int{2, 10} {
+					want, got := make([]int, n), make([]int, n)
+					cutByScore(slices.Clone(order), score, ones, groups, want)
+					cutByScore(slices.Clone(order), score, nil, groups, got)
+					if !slices.Equal(got, want) {
+						t.Fatalf("n %d, kind %d, every %d, %d groups: the groups by counts differ from the sort's", n, kind, every, groups)
+					}
+				}
+			}
 		}
 	}
 }
