@@ -204,8 +204,8 @@ func ResolveFit(s SingleFit) (*Analysis, error) {
 	spec := s.designSpec()
 	dopt := data.Options{Outcome: s.Outcome, Categories: s.Categories,
 		Weights: s.Weights, Offset: s.Offset, Cluster: s.Cluster, Refuse: s.Refuse, Dialect: s.Dialect}
-	a := &Analysis{Source: s.DataFile, DataFile: s.DataFile, DataPath: s.DataFile,
-		Errors: covariancePolicy(s.Covariance, s.Sampling)}
+	a := &Analysis{Source: s.DataName(), DataFile: s.DataName(), DataPath: s.DataFile,
+		DataPaths: s.Parts, DataFiles: s.Parts, Errors: covariancePolicy(s.Covariance, s.Sampling)}
 	a.Fit = a.Errors.fitOptions(s.Workers)
 	a.Outcomes = []Reading{{Outcome: s.Outcome, Key: fmt.Sprintf("outcome %q", s.Outcome), CategoriesKey: "--categories",
 		Options: readSources(dopt, spec), Design: spec}}

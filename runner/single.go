@@ -10,7 +10,11 @@ import (
 
 // SingleFit is what `ordplan fit` asks for.
 type SingleFit struct {
-	DataFile    string
+	DataFile string
+	// Parts are the data held as parts (DataFile empty): files with the
+	// same columns read in order as one data set (data.LoadFiles), as the
+	// plan key data.parts reads them.
+	Parts       []string
 	Outcome     string
 	Categories  []string
 	Predictors  []string     // term names (plain columns when Design is nil)
@@ -28,6 +32,15 @@ type SingleFit struct {
 	Dialect     data.Dialect // the data file's delimiter and decimal mark
 	Covariance  fit.Covariance
 	Workers     int
+}
+
+// DataName names the data in messages and summaries: the file, or the
+// parts (data.PartsName).
+func (s SingleFit) DataName() string {
+	if s.Parts != nil {
+		return data.PartsName(s.Parts)
+	}
+	return s.DataFile
 }
 
 // FitOne fits one model: it resolves the flags, reads the data, builds
@@ -92,7 +105,7 @@ func fitOne(s SingleFit) (*fit.Result, *Loaded, *Analysis, error) {
 	}
 	res, err := fit.Fit(ld.FitData, model, a.Fit)
 	if err != nil {
-		return nil, ld, a, fmt.Errorf("%s: %w", s.DataFile, err)
+		return nil, ld, a, fmt.Errorf("%s: %w", a.DataFile, err)
 	}
 	if sw := a.Errors.Sandwich(ds, ld.FitData); sw != nil && res.OK() {
 		if err := sw(res); err != nil {

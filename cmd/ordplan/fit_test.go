@@ -8,6 +8,7 @@ import (
 	"ordplan/internal/refdata"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 )
@@ -83,7 +84,7 @@ func TestFitTableAndFailures(t *testing.T) {
 		{"table", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89,male", "--approach", "stage"}, 0, "stage/parallel/logit"},
 		{"baseline", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89", "--approach", "adjacent", "--all-nonparallel", "--baseline", "1"}, 0, "Baseline-category form"},
 		{"separation", []string{"fit", "--data", wine, "--outcome", "rating", "--predictors", "temp,contact", "--all-nonparallel"}, 1, "no finite maximum"},
-		{"missing flag", []string{"fit", "--outcome", "warm"}, 2, "--data is required"},
+		{"missing flag", []string{"fit", "--outcome", "warm"}, 2, "--data FILE (or --parts a.csv,b.csv,...) is required"},
 		{"unknown approach", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89", "--approach", "sideways"}, 2, `unknown approach "sideways"`},
 		{"unknown link", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89", "--link", "tanh"}, 2, `unknown link "tanh"`},
 		{"absent column", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "height"}, 1, `height`},
@@ -197,5 +198,50 @@ func TestFitPrintsChecks(t *testing.T) {
 	}
 	if !strings.Contains(out, "Pulkstenis-Robinson tests (street_type: 3 patterns, 6 groups): Pearson chi2(17) = ") || !strings.Contains(out, "; deviance chi2(17) = ") {
 		t.Errorf("no Pulkstenis-Robinson line:\n%s", out)
+	}
+}
+
+// `ordplan fit --parts` without a queue reads the parts here, in order, as
+// one data set (the reader of the plan key data.parts): the fit, its
+// checks (the Lipsitz test included) and the JSON are those of one file
+// holding the same rows, byte for byte; the table differs only in the line
+// naming the data. General Social Survey extract (Long 1997), cut into
+// three parts of consecutive rows.
+func TestFitPartsReadLocally(t *testing.T) {
+	src, err := os.ReadFile(filepath.Join(refDir, "gsswarm.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.SplitAfter(strings.TrimRight(string(src), "\n")+"\n", "\n")
+	head, rows := lines[0], lines[1:len(lines)-1]
+	dir := t.TempDir()
+	whole := head
+	var parts []string
+	for p, cut := range [][2]int{{0, 700}, {700, 701}, {701, len(rows)}} {
+		body := strings.Join(rows[cut[0]:cut[1]], "")
+		whole += body
+		path := filepath.Join(dir, fmt.Sprintf("part%d.csv", p))
+		os.WriteFile(path, []byte(head+body), 0o644)
+		parts = append(parts, path)
+	}
+	wholePath := filepath.Join(dir, "whole.csv")
+	os.WriteFile(wholePath, []byte(whole), 0o644)
+	for _, model := range [][]string{{"--nonparallel", "yr89,male", "--json"}, {"--json"}, {"--approach", "adjacent", "--covariance", "sandwich"}} {
+		args := append([]string{"fit", "--outcome", "warm", "--predictors", "yr89,male,white,age,ed,prst"}, model...)
+		one, errs, code := runCLI(append(args, "--data", wholePath)...)
+		if code != 0 {
+			t.Fatalf("%v: one file: exit %d: %s", model, code, errs)
+		}
+		held, errs, code := runCLI(append(args, "--parts", strings.Join(parts, ","))...)
+		if code != 0 {
+			t.Fatalf("%v: parts: exit %d: %s", model, code, errs)
+		}
+		held = strings.Replace(held, "parts "+strings.Join(parts, ", "), wholePath, 1)
+		if held != one {
+			t.Errorf("%v: the fit over parts read here differs from the fit of one file:\n%s\n---\n%s", model, one, held)
+		}
+		if !regexp.MustCompile(`"name": "lipsitz",\s+"ok": true`).MatchString(one) && !strings.Contains(one, "Lipsitz test (10 groups of predicted score): chi2(9) = ") {
+			t.Errorf("%v: no Lipsitz test:\n%s", model, one)
+		}
 	}
 }

@@ -46,7 +46,7 @@ var commands = []command{
 			"offset": "--offset exposure", "missing": "--missing refuse", "delimiter": "--delimiter semicolon --decimal comma", "decimal": "--delimiter semicolon --decimal comma",
 			"sheet": "--data survey.xlsx --sheet wave2", "header-row": "--data survey.xlsx --header-row 3", "baseline": "--approach adjacent --all-nonparallel --baseline neutral",
 			"confidence-level": "--confidence-level 0.9", "json": "--json",
-			"queue": "--queue nats://10.0.0.5:4222 --partitions a.csv,b.csv", "partitions": "--partitions part1.csv,part2.csv",
+			"queue": "--queue nats://10.0.0.5:4222 --parts a.csv,b.csv", "parts": "--parts part1.csv,part2.csv",
 		},
 		more: func() string { return compactHelp }},
 	{name: "init", args: "PLAN.yaml [flags]", summary: "write a commented plan skeleton from a data file or a header line",

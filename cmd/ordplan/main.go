@@ -127,7 +127,7 @@ func parseFlags(fs *flag.FlagSet, args []string) (bool, int) {
 type fitFlags struct {
 	dataFile, outcome, categories, predictors, direction *string
 	nonparallel, constrained, weights, weightKind        *string
-	cluster, offset, missing, baseline, partitions       *string
+	cluster, offset, missing, baseline, parts            *string
 	delimiter, decimal, sheet                            *string
 	headerRow                                            *int
 	allFree, stereotype, asJSON                          *bool
@@ -144,7 +144,8 @@ type fitFlags struct {
 const fitGCPercent = 25
 
 // cmdFit fits one model from the command line, in phases: the flags, their
-// checks, the model they describe, the fit (here or over partitions), and
+// checks, the model they describe, the fit (here, or over parts on queue
+// workers), and
 // the table or JSON it prints.
 func cmdFit(args []string, stdout, stderr io.Writer) int {
 	fs := newFlags("fit", stderr)
@@ -160,8 +161,8 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
-	if *f.partitions != "" || *f.queue.url != "" {
-		return fitPartitioned(s, f, checkedList(*f.partitions), stdout, stderr)
+	if *f.queue.url != "" {
+		return fitPartitioned(s, f, s.Parts, stdout, stderr)
 	}
 	// The data, the design and the fits' large arrays hold no pointers, so
 	// collecting garbage more often costs little and keeps the peak memory
@@ -179,7 +180,7 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 	for _, n := range ds.Notes {
 		drop += "; " + strings.TrimSuffix(n, ".")
 	}
-	sum := render.DataSummary{File: *f.dataFile, Outcome: *f.outcome, RowsRead: ds.RowsRead, RowsUsed: ds.N, DropSummary: drop}
+	sum := render.DataSummary{File: s.DataName(), Outcome: *f.outcome, RowsRead: ds.RowsRead, RowsUsed: ds.N, DropSummary: drop}
 	if err := f.print(stdout, res, sum, base, checks); err != nil {
 		return fail(stderr, err)
 	}
@@ -216,8 +217,8 @@ func defineFitFlags(fs *flag.FlagSet) *fitFlags {
 		baseline:    fs.String("baseline", "", "also show an adjacent nonparallel logit as baseline-category logits against this category"),
 		level:       fs.Float64("confidence-level", 0.95, "confidence level of the intervals"),
 		asJSON:      fs.Bool("json", false, "print one JSON object instead of the table"),
-		queue:       addQueueFlags(fs, "with --partitions: the NATS JetStream server whose workers hold the partitions", true),
-		partitions:  fs.String("partitions", "", "fit one model over these CSV files (same columns) through --queue workers, for data too large for one machine"),
+		queue:       addQueueFlags(fs, "with --parts: the NATS JetStream server whose workers hold the parts and sum the fit over them", true),
+		parts:       fs.String("parts", "", "the data held as parts instead of --data: files with the same columns, comma separated, read in order as one data set (as the plan key data.parts); with --queue, workers hold the parts and sum the fit over them"),
 	}
 	fs.TextVar(&f.approach, "approach", fit.Cumulative, "how categories are compared: "+fit.ComparisonWords.OrList())
 	fs.TextVar(&f.link, "link", fit.Logit, "link: "+fit.LinkWords.OrList())
@@ -231,13 +232,13 @@ func (f *fitFlags) usageProblem(fs *flag.FlagSet) string {
 	if fs.NArg() > 0 {
 		return fmt.Sprintf("unexpected argument %q", fs.Arg(0))
 	}
-	for _, req := range []struct{ name, v string }{{"data", *f.dataFile + *f.partitions}, {"outcome", *f.outcome}} {
+	for _, req := range []struct{ name, v string }{{"data FILE (or --parts a.csv,b.csv,...)", *f.dataFile + *f.parts}, {"outcome", *f.outcome}} {
 		if req.v == "" {
 			return fmt.Sprintf("--%s is required", req.name)
 		}
 	}
 	for _, l := range []struct{ name, v string }{{"predictors", *f.predictors}, {"categories", *f.categories},
-		{"nonparallel", *f.nonparallel}, {"partitions", *f.partitions}} {
+		{"nonparallel", *f.nonparallel}, {"parts", *f.parts}} {
 		if _, err := listItems(l.v); err != nil {
 			return fmt.Sprintf("--%s: %v", l.name, err)
 		}
@@ -260,13 +261,11 @@ func (f *fitFlags) usageProblem(fs *flag.FlagSet) string {
 	if *f.headerRow < 1 {
 		return fmt.Sprintf("--header-row must be a sheet row number, 1 or more (got %d)", *f.headerRow)
 	}
-	switch parts, url := checkedList(*f.partitions), *f.queue.url; {
+	switch parts, url := checkedList(*f.parts), *f.queue.url; {
 	case len(parts) > 0 && *f.dataFile != "":
-		return "give --data (one file) or --partitions (the data as several files, fitted by queue workers), not both"
-	case len(parts) > 0 && url == "":
-		return "--partitions needs --queue nats://HOST:PORT (queue workers fit the partitions)"
+		return "give --data (one file) or --parts (the data as several files), not both"
 	case url != "" && len(parts) == 0:
-		return "--queue needs --partitions a.csv,b.csv,... (the files the workers sum the fit over)"
+		return "--queue needs --parts a.csv,b.csv,... (the files the workers hold and sum the fit over)"
 	}
 	if (*f.sheet != "" || *f.headerRow != 1) && !f.workbooks() {
 		return "--sheet and --header-row are for .xlsx workbooks; the data file is not named *.xlsx"
@@ -283,7 +282,7 @@ func checkedList(s string) []string {
 
 // workbooks reports whether the data files are .xlsx workbooks.
 func (f *fitFlags) workbooks() bool {
-	files := checkedList(*f.partitions)
+	files := checkedList(*f.parts)
 	if *f.dataFile != "" {
 		files = append(files, *f.dataFile)
 	}
@@ -305,7 +304,7 @@ func (f *fitFlags) single() (runner.SingleFit, error) {
 	for _, t := range dspec.Terms {
 		termNames = append(termNames, t.Name)
 	}
-	s := runner.SingleFit{DataFile: *f.dataFile, Outcome: *f.outcome, Categories: checkedList(*f.categories),
+	s := runner.SingleFit{DataFile: *f.dataFile, Parts: checkedList(*f.parts), Outcome: *f.outcome, Categories: checkedList(*f.categories),
 		Predictors: termNames, Design: &dspec, Approach: f.approach, Backward: *f.direction == "backward",
 		Link: f.link, Nonparallel: checkedList(*f.nonparallel), Weights: *f.weights, Offset: *f.offset,
 		Refuse: *f.missing == "refuse", Covariance: f.covariance, Cluster: *f.cluster, Sampling: *f.weightKind == "sampling"}

@@ -9,8 +9,9 @@ import (
 	"ordplan/runner/queue"
 )
 
-// fitPartitioned fits one model over partition files through queue
-// workers: each Newton evaluation is summed over the partitions.
+// fitPartitioned fits one model over the parts through queue workers
+// (ordplan fit --parts --queue): each Newton evaluation is summed over the
+// parts.
 func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, stderr io.Writer) int {
 	qf := f.queue
 	a, err := runner.ResolveFit(s)
@@ -50,7 +51,7 @@ func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, std
 	if err != nil {
 		return fail(stderr, err)
 	}
-	sum := render.DataSummary{File: fmt.Sprintf("%d partitions", len(parts)), Outcome: s.Outcome, RowsRead: read, RowsUsed: whole.Rows,
+	sum := render.DataSummary{File: s.DataName(), Outcome: s.Outcome, RowsRead: read, RowsUsed: whole.Rows,
 		DropSummary: fmt.Sprintf("%d rows dropped for missing values or zero weight", read-whole.Rows)}
 	if err := f.print(stdout, res, sum, base, checks); err != nil {
 		return fail(stderr, err)

@@ -317,7 +317,7 @@ func TestQueueBadInput(t *testing.T) {
 	}
 }
 
-// `ordplan fit --queue URL --partitions ...` fits one model over partition
+// `ordplan fit --queue URL --parts ...` fits one model over the parts'
 // files held by worker processes and equals the local fit of the whole
 // file to 1e-8 (General Social Survey extract, Long 1997).
 func TestFitPartitionsThroughWorkers(t *testing.T) {
@@ -343,7 +343,7 @@ func TestFitPartitionsThroughWorkers(t *testing.T) {
 	if code != 0 {
 		t.Fatal(errs)
 	}
-	dist, errs, code := runCLI(append(args, "--queue", url, "--partitions", strings.Join(parts, ","))...)
+	dist, errs, code := runCLI(append(args, "--queue", url, "--parts", strings.Join(parts, ","))...)
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
@@ -376,7 +376,7 @@ func TestFitPartitionsThroughWorkers(t *testing.T) {
 		if code != 0 {
 			t.Fatal(errs)
 		}
-		dist, errs, code := runCLI(append(text, "--queue", url, "--partitions", strings.Join(parts, ","))...)
+		dist, errs, code := runCLI(append(text, "--queue", url, "--parts", strings.Join(parts, ","))...)
 		if code != 0 {
 			t.Fatalf("%v: exit %d: %s", extra, code, errs)
 		}

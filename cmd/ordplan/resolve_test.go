@@ -2,8 +2,10 @@ package main
 
 import (
 	"io"
+	"os"
 	"path/filepath"
 	"reflect"
+	"slices"
 	"testing"
 
 	"ordplan/plan"
@@ -20,12 +22,19 @@ import (
 func TestResolvePlanAndFlagsAgree(t *testing.T) {
 	dir := t.TempDir()
 	dataPath := filepath.Join(dir, "d.csv")
+	for _, part := range []string{"p1.csv", "p2.csv"} {
+		os.WriteFile(filepath.Join(dir, part), []byte("y,x1\n"), 0o644)
+	}
 	cases := []struct {
 		name  string
 		plan  string   // the data and covariance sections, and predictors
-		flags []string // besides --data, --outcome and --categories
+		flags []string // besides --outcome and --categories (and --data, unless they give --parts)
 		want  runner.CovariancePolicy
 	}{
+		{"data held as parts",
+			"data: {parts: [p1.csv, p2.csv]}\npredictors: [x1]\n",
+			[]string{"--parts", filepath.Join(dir, "p1.csv") + "," + filepath.Join(dir, "p2.csv"), "--predictors", "x1"},
+			runner.CovariancePolicy{Covariance: fit.Observed}},
 		{"plain columns, frequency weights",
 			"data: {file: d.csv, weights: w}\npredictors: [x1, x2]\n",
 			[]string{"--predictors", "x1,x2", "--weights", "w"},
@@ -65,7 +74,10 @@ func TestResolvePlanAndFlagsAgree(t *testing.T) {
 
 			fs := newFlags("fit", io.Discard)
 			f := defineFitFlags(fs)
-			args := append([]string{"--data", dataPath, "--outcome", "y", "--categories", "lo,mid,hi"}, c.flags...)
+			args := append([]string{"--outcome", "y", "--categories", "lo,mid,hi"}, c.flags...)
+			if !slices.Contains(c.flags, "--parts") {
+				args = append(args, "--data", dataPath)
+			}
 			if stop, code := parseFlags(fs, args); stop {
 				t.Fatalf("flags: exit %d", code)
 			}
@@ -88,8 +100,8 @@ func TestResolvePlanAndFlagsAgree(t *testing.T) {
 			if !reflect.DeepEqual(fromPlan.Fit, fromFlags.Fit) {
 				t.Errorf("fit options: plan %+v, flags %+v", fromPlan.Fit, fromFlags.Fit)
 			}
-			if fromPlan.DataPath != fromFlags.DataPath {
-				t.Errorf("data path: plan %s, flags %s", fromPlan.DataPath, fromFlags.DataPath)
+			if !reflect.DeepEqual(fromPlan.Paths(), fromFlags.Paths()) {
+				t.Errorf("data: plan %s %v, flags %s %v", fromPlan.DataFile, fromPlan.Paths(), fromFlags.DataFile, fromFlags.Paths())
 			}
 			if len(fromPlan.Outcomes) != 1 || len(fromFlags.Outcomes) != 1 {
 				t.Fatalf("outcomes: plan %d, flags %d", len(fromPlan.Outcomes), len(fromFlags.Outcomes))
