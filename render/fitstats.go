@@ -104,7 +104,12 @@ func writeGoodnessOfFit(d *doc, or *runner.OutcomeResult) {
 	}
 	d.p("Rows are sorted by their predicted ordinal score (the expected category, categories scored 1 to %d) and cut into %d groups of about equal size; rows with the same score stay in one group. The Lipsitz test refits the chosen model with an indicator of each group but the first as an extra parallel predictor: if the model describes the data well along its own score, those indicators add nothing.",
 		len(t.Categories), t.Groups)
-	if lz.Test.OK {
+	if pl := or.GOFPooling; pl != nil {
+		d.p("On imputed data (%d sets): %s.", or.Imputed.M, pl.Note)
+	}
+	if lz.Test.OK && lz.Test.Pooled != "" {
+		d.p("Lipsitz test, pooled over the imputed sets by %s (approximate): %s, %s.", lz.Test.Pooled, runner.TestStatistic(lz.Test), numfmt.PText(lz.Test.P))
+	} else if lz.Test.OK {
 		d.p("Lipsitz test: chi-square(%d) = %s, %s.", lz.Test.DF, numfmt.Stat(lz.Test.Chi2), numfmt.PText(lz.Test.P))
 	} else {
 		d.p("Lipsitz test not computed: %s.", lz.Test.Reason)
@@ -152,9 +157,14 @@ func writePatternSplit(d *doc, or *runner.OutcomeResult) {
 		name string
 		test fit.Test
 	}{{"Pearson", t.Pearson}, {"Deviance", t.Deviance}} {
-		if ts.test.OK {
+		switch {
+		case ts.test.OK && ts.test.Pooled != "":
+			d.p("%s, pooled over the imputed sets by %s (approximate; each set's statistic on chi-square(%d)): %s, %s.", ts.name, ts.test.Pooled, ts.test.DF, runner.TestStatistic(ts.test), numfmt.PText(ts.test.P))
+		case ts.test.OK:
 			d.p("%s: chi-square(%d) = %s, %s.", ts.name, ts.test.DF, numfmt.Stat(ts.test.Chi2), numfmt.PText(ts.test.P))
-		} else {
+		case ts.test.Pooled == "" && ts.test.Chi2 == 0 && or.GOFPooling != nil:
+			d.p("%s: not computed, %s.", ts.name, ts.test.Reason)
+		default:
 			d.p("%s statistic %s: not a test, %s.", ts.name, numfmt.Stat(ts.test.Chi2), ts.test.Reason)
 		}
 	}

@@ -66,7 +66,16 @@ func TestImputedReport(t *testing.T) {
 		// The methods paragraph counts the rows of one set, not of the
 		// stacked file (960 rows, of which one set's 240 are read at a time).
 		"Each of the 4 imputed data sets held 240 rows, all used.",
+		// Goodness of fit: each set's Lipsitz test pooled by D2, said to
+		// be approximate, with its source.
+		"On imputed data (4 sets): each imputed set's rows are grouped by that set's own fitted scores",
+		"Lipsitz test, pooled over the imputed sets by D2 (approximate): F(",
+		"combined by the D2 rule [",
+		"Li, K.H., Meng, X.L., Raghunathan, T.E. & Rubin, D.B. (1991). Significance levels from repeated p-values with multiply-imputed data.",
 	)
+	if strings.Contains(md, "not computed on imputed data") {
+		t.Error("report.md still says goodness-of-fit tests are not computed on imputed data")
+	}
 	if strings.Contains(md, "were dropped for missing values") {
 		t.Error("the methods paragraph counts the other imputed sets' rows as dropped")
 	}

@@ -34,6 +34,7 @@ var references = []reference{
 	{"lipsitz", "Lipsitz, S.R., Fitzmaurice, G.M. & Molenberghs, G. (1996). Goodness-of-fit tests for ordinal response regression models. Applied Statistics 45:175-190."},
 	{"pulkstenis", "Pulkstenis, E. & Robinson, T.J. (2004). Goodness-of-fit tests for ordinal response regression models. Statistics in Medicine 23:999-1014."},
 	{"rubin", "Rubin, D.B. (1987). Multiple Imputation for Nonresponse in Surveys. Wiley."},
+	{"d2", "Li, K.H., Meng, X.L., Raghunathan, T.E. & Rubin, D.B. (1991). Significance levels from repeated p-values with multiply-imputed data. Statistica Sinica 1:65-92."},
 	{"vanbuuren", "van Buuren, S. (2018). Flexible Imputation of Missing Data, 2nd ed. CRC Press."},
 	{"little", "Little, R.J.A. (1988). Missing-data adjustments in large surveys. Journal of Business and Economic Statistics 6:287-296."},
 	{"augment", "White, I.R., Daniel, R. & Royston, P. (2010). Avoiding bias due to perfect prediction in multiple imputation of incomplete categorical variables. Computational Statistics and Data Analysis 54:2267-2275."},
@@ -173,6 +174,9 @@ func writeMethods(d *doc, r *runner.Result) {
 		}
 		if ps := or.PatternSplit; ps != nil && ps.PatternSplit != nil {
 			s = append(s, fmt.Sprintf("Its fit by covariate pattern of the categorical predictors (%s) was checked with the Pulkstenis-Robinson Pearson and deviance tests %s.", strings.Join(ps.Predictors, ", "), c.cite("pulkstenis")))
+		}
+		if or.GOFPooling != nil && or.Lipsitz != nil {
+			s = append(s, fmt.Sprintf("On the imputed data these goodness-of-fit tests were computed on each imputed set with that set's fit of the chosen model, and their chi-square statistics were combined by the D2 rule %s, an approximation that is less powerful than the pooled tests of estimates or likelihoods.", c.cite("d2")))
 		}
 		s = append(s, fmt.Sprintf("Predicted probabilities and marginal effects have delta-method standard errors; the random starts of constrained fits used the seed %d.", p.Seed))
 		d.p("%s", strings.Join(s, " "))

@@ -565,6 +565,7 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 	}
 	applyRules(an, or)
 	runPooledFitStats(an, or)
+	runPooledGoodnessOfFit(an, or)
 	for _, h := range an.Inference.Hypotheses {
 		or.Hypotheses = append(or.Hypotheses, hypothesisTests(h, or)...)
 	}
@@ -572,7 +573,7 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 		return nil, err
 	}
 	or.Notes = append(or.Notes, fmt.Sprintf("Analysed on %d imputed data sets, pooled by Rubin's rules; log-likelihoods, AIC and BIC are means over the sets, and rules on AIC or BIC compare those means; the plan's hypotheses are pooled Wald tests (D1); marginal effects and predictions are computed on each set and pooled by Rubin's rules", run.M),
-		"Overall fit on imputed data: the likelihood-ratio test against the thresholds-only model is pooled by D3, and LL0 and the pseudo-R2 measures are means over the sets; goodness-of-fit tests (Lipsitz, Pulkstenis-Robinson) are not computed on imputed data")
+		"Overall fit on imputed data: the likelihood-ratio test against the thresholds-only model is pooled by D3, and LL0 and the pseudo-R2 measures are means over the sets; the goodness-of-fit tests of the chosen model (Lipsitz, Pulkstenis-Robinson) are computed on each set and pooled by D2, which is approximate")
 	return or, nil
 }
 

@@ -14,8 +14,7 @@ import (
 // D3 (the thresholds-only model at the mean of the sets' thresholds, the
 // candidate at its pooled estimates); LL0 and the pseudo-R2 measures are
 // the means over the sets of each set's value. The Lipsitz and
-// Pulkstenis-Robinson tests, whose groups depend on each set's fitted
-// scores, are not pooled.
+// Pulkstenis-Robinson tests are pooled by runPooledGoodnessOfFit.
 func runPooledFitStats(a *Analysis, or *OutcomeResult) {
 	type nulls struct {
 		rec  *NullRecord

@@ -30,22 +30,24 @@ func (or *OutcomeResult) perSetOf(f *FitEntry) []*FitEntry {
 // pooledChi2 pools a chi-square test computed on each imputed set by D2.
 // A negative statistic (possible for approximate likelihood-ratio
 // constructions) counts as 0.
-func pooledChi2(kind fit.TestKind, per []fit.Test) fit.Test {
+func pooledChi2(name string, per []fit.Test) fit.Test {
 	chi := make([]float64, len(per))
 	for k, t := range per {
 		if !t.OK {
-			return missingTest(kind, fmt.Sprintf("in imputed set %d: %s", k+1, t.Reason))
+			return fit.Test{Name: name, Reason: fmt.Sprintf("in imputed set %d: %s", k+1, t.Reason)}
 		}
 		if t.DF != per[0].DF {
-			return missingTest(kind, fmt.Sprintf("imputed set %d gives %d degrees of freedom but set 1 %d", k+1, t.DF, per[0].DF))
+			return fit.Test{Name: name, Reason: fmt.Sprintf("imputed set %d gives %d degrees of freedom but set 1 %d", k+1, t.DF, per[0].DF)}
 		}
 		chi[k] = math.Max(t.Chi2, 0)
 	}
 	d, err := impute.D2(chi, per[0].DF)
 	if err != nil {
-		return missingTest(kind, err.Error())
+		return fit.Test{Name: name, Reason: err.Error()}
 	}
-	return fTest(kind, d, math.NaN(), math.NaN())
+	t := fTest(0, d, math.NaN(), math.NaN())
+	t.Name = name
+	return t
 }
 
 // pooledScore is the score test of restricted (at each set's own
@@ -59,7 +61,7 @@ func pooledScore(or *OutcomeResult, restricted *FitEntry, full fit.Model) fit.Te
 	for k, e := range sets {
 		per[k] = fit.ScoreTest(or.Imputed.Sets[k], e.Result, full)
 	}
-	return pooledChi2(fit.TestScore, per)
+	return pooledChi2(fit.TestScore.String(), per)
 }
 
 // pooledWolfeGould is the Wolfe-Gould test of each set pooled by D2.
@@ -68,7 +70,7 @@ func pooledWolfeGould(or *OutcomeResult, fopt fit.Options) fit.Test {
 	for k, d := range or.Imputed.Sets {
 		per[k] = fit.WolfeGould(d, fopt)
 	}
-	return pooledChi2(fit.TestWolfeGould, per)
+	return pooledChi2(fit.TestWolfeGould.String(), per)
 }
 
 // pooledBrant holds the Brant construction of every imputed set.

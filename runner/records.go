@@ -69,8 +69,10 @@ type OutcomeDecisions struct {
 	Lipsitz    *fit.Lipsitz       `json:"lipsitz,omitempty"`
 	// PatternSplit: the Pulkstenis-Robinson tests of the chosen model.
 	PatternSplit *PatternSplitRecord `json:"pulkstenis_robinson,omitempty"`
-	Hypotheses   []HypothesisResult  `json:"hypotheses,omitempty"`
-	Marginal     []MarginalSet       `json:"marginal_effects,omitempty"`
+	// GOFPooling: on imputed data, how those tests were pooled.
+	GOFPooling *GOFPooling        `json:"goodness_of_fit_pooling,omitempty"`
+	Hypotheses []HypothesisResult `json:"hypotheses,omitempty"`
+	Marginal   []MarginalSet      `json:"marginal_effects,omitempty"`
 	// Terms: how each predictor term became design columns, with every
 	// constant frozen from the data (omitted when every term is a numeric
 	// column as it is).
@@ -226,6 +228,7 @@ func BuildDecisions(r *Result) *Decisions {
 		}
 		od.Lipsitz = or.Lipsitz
 		od.PatternSplit = or.PatternSplit
+		od.GOFPooling = or.GOFPooling
 		od.Hypotheses = or.Hypotheses
 		od.Marginal = or.Marginal
 		d.Outcomes = append(d.Outcomes, od)

@@ -61,6 +61,9 @@ type OutcomeResult struct {
 	// PatternSplit: the Pulkstenis-Robinson tests of the chosen model
 	// (nil when not run: no chosen model).
 	PatternSplit *PatternSplitRecord
+	// GOFPooling: on imputed data, how the goodness-of-fit tests were
+	// pooled over the sets (nil otherwise).
+	GOFPooling *GOFPooling
 
 	Hypotheses []HypothesisResult // the plan's hypotheses, per model
 

@@ -4,7 +4,9 @@ import (
 	"bufio"
 	"bytes"
 	"context"
+	"crypto/sha256"
 	"encoding/csv"
+	"encoding/hex"
 	"fmt"
 	"os"
 	"os/exec"
@@ -119,6 +121,27 @@ func Frozen(t testing.TB, path string) Values {
 		t.Fatalf("%s: %v", path, err)
 	}
 	return vals
+}
+
+// FrozenBy is Frozen for the output of the R script at script saved in
+// frozen, after checking that frozen records the script's SHA-256 in a
+// line "# script-sha256 HEX": values made by another version of the script
+// fail the test, which says how to make them again (remake).
+func FrozenBy(t testing.TB, script, frozen, remake string) Values {
+	t.Helper()
+	src, err := os.ReadFile(script)
+	if err != nil {
+		t.Fatal(err)
+	}
+	saved, err := os.ReadFile(frozen)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sum := sha256.Sum256(src)
+	if !strings.Contains(string(saved), "# script-sha256 "+hex.EncodeToString(sum[:])+"\n") {
+		t.Fatalf("%s was not made by the %s of today (its SHA-256 is not the one recorded); run it again: %s, keeping the header of %s", frozen, script, remake, frozen)
+	}
+	return Frozen(t, frozen)
 }
 
 func parse(b []byte) (Values, error) {

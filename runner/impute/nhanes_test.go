@@ -1,11 +1,8 @@
 package impute
 
 import (
-	"crypto/sha256"
-	"encoding/hex"
 	"fmt"
 	"math"
-	"os"
 	"strings"
 	"testing"
 
@@ -126,19 +123,7 @@ func version(v []float64) string {
 // finite complete-data degrees of freedom, D1 and D2 agree with mice's values
 // on nhanes, frozen in testdata by the script that sits beside them.
 func TestRubinAgainstMiceFrozen(t *testing.T) {
-	script, err := os.ReadFile(nhanesScript)
-	if err != nil {
-		t.Fatal(err)
-	}
-	frozen, err := os.ReadFile(nhanesFrozen)
-	if err != nil {
-		t.Fatal(err)
-	}
-	sum := sha256.Sum256(script)
-	if !strings.Contains(string(frozen), "# script-sha256 "+hex.EncodeToString(sum[:])+"\n") {
-		t.Fatalf("%s was not made by the %s of today (its SHA-256 is not the one recorded); run it again: cd runner/impute/testdata && Rscript --vanilla nhanes.R (see the header of %s)", nhanesFrozen, nhanesScript, nhanesFrozen)
-	}
-	v := rscript.Frozen(t, nhanesFrozen)
+	v := rscript.FrozenBy(t, nhanesScript, nhanesFrozen, "cd runner/impute/testdata && Rscript --vanilla nhanes.R")
 	worst := checkNhanes(t, v)
 	t.Logf("mice %s, mitml %s, R %s: largest relative difference %.2g", version(v.Get(t, "mice_version")), version(v.Get(t, "mitml_version")), version(v.Get(t, "r_version")), worst)
 }

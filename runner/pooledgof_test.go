@@ -1,0 +1,215 @@
+package runner
+
+import (
+	"math"
+	"strings"
+	"testing"
+
+	"ordplan/internal/rscript"
+	"ordplan/runner/fit"
+	"ordplan/runner/impute"
+)
+
+// The check of D2 on goodness-of-fit statistics against mitml (the
+// general-purpose multiple-imputation package whose D2 mice::D2 uses):
+// testdata/gofd2.R pools the statistics of TestPooledGoodnessOfFit's run
+// with mitml, testdata/gofd2-mitml.txt is what it printed (with the R and
+// mitml versions and the script's SHA-256), so the check runs without R;
+// with R and mitml installed TestPooledGOFAgainstMitml runs it again.
+const (
+	gofD2Script = "testdata/gofd2.R"
+	gofD2Frozen = "testdata/gofd2-mitml.txt"
+)
+
+// TestPooledGoodnessOfFit: on imputed data (chained equations, sets that
+// differ; a categorical predictor, so both tests apply) the Lipsitz and
+// Pulkstenis-Robinson tests of the chosen model are computed on every set
+// with that set's own fit, made here again by fit.Fit, and rows, and their
+// statistics pooled by D2; the tables are the means of the sets' counts.
+func TestPooledGoodnessOfFit(t *testing.T) {
+	p := chainedFixture(t, "  imputation: {sets: 4, iterations: 2}")
+	or := runPlan(t, p, 0).Outcomes[0]
+	im, rec := or.Imputed, or.GOFPooling
+	if rec == nil || rec.Method != "D2" || or.Lipsitz == nil || or.PatternSplit == nil || or.PatternSplit.PatternSplit == nil {
+		t.Fatalf("pooling %+v, lipsitz %+v, pattern split %+v", rec, or.Lipsitz, or.PatternSplit)
+	}
+	if len(rec.Lipsitz) != im.M || len(rec.Pearson) != im.M || len(rec.Deviance) != im.M {
+		t.Fatalf("statistics by set: %v %v %v", rec.Lipsitz, rec.Pearson, rec.Deviance)
+	}
+	ps := or.PatternSplit.PatternSplit
+	var lzDF, prDF int
+	for k := range im.Sets {
+		r, err := fit.Fit(im.Sets[k], or.Chosen.Result.Model, fit.Options{})
+		if err != nil || !r.OK() {
+			t.Fatalf("set %d: %v", k+1, err)
+		}
+		lz, err := fit.LipsitzTest(im.Sets[k], r, 0, fit.Options{})
+		if err != nil || !lz.Test.OK {
+			t.Fatalf("set %d: Lipsitz %v %+v", k+1, err, lz)
+		}
+		_, pr := goodnessOfFit(&Loaded{Data: im.Data[k], Design: or.Design, FitData: im.Sets[k]}, r, fit.Options{}, false)
+		if pr == nil || pr.PatternSplit == nil {
+			t.Fatalf("set %d: Pulkstenis-Robinson %+v", k+1, pr)
+		}
+		for _, c := range []struct {
+			name      string
+			got, want float64
+		}{{"Lipsitz", rec.Lipsitz[k], lz.Test.Chi2}, {"Pearson", rec.Pearson[k], pr.Pearson.Chi2}, {"deviance", rec.Deviance[k], pr.Deviance.Chi2}} {
+			if math.Abs(c.got-c.want) > 1e-6*math.Max(1, c.want) {
+				t.Errorf("set %d: %s statistic %.10g, its own fit gives %.10g", k+1, c.name, c.got, c.want)
+			}
+		}
+		lzDF, prDF = lz.Test.DF, pr.Pearson.DF
+	}
+	// The statistics are those the check against mitml pools.
+	frozen := rscript.Frozen(t, gofD2Frozen)
+	for _, c := range []struct {
+		name string
+		by   []float64
+	}{{"lipsitz", rec.Lipsitz}, {"pearson", rec.Pearson}, {"deviance", rec.Deviance}} {
+		want := frozen.Get(t, c.name+"_chi2")
+		for k := range want {
+			if math.Abs(c.by[k]-want[k]) > 1e-6*want[k] {
+				t.Errorf("%s statistic of set %d: %.17g, %s has %.17g (make the script's statistics again)", c.name, k+1, c.by[k], gofD2Frozen, want[k])
+			}
+		}
+	}
+	if rec.Lipsitz[0] == rec.Lipsitz[1] {
+		t.Error("the sets give the same Lipsitz statistic: the check cannot tell sets apart")
+	}
+	for _, c := range []struct {
+		name string
+		got  fit.Test
+		by   []float64
+		df   int
+	}{{"lipsitz", or.Lipsitz.Test, rec.Lipsitz, lzDF}, {"pulkstenis_robinson_pearson", ps.Pearson, rec.Pearson, prDF}, {"pulkstenis_robinson_deviance", ps.Deviance, rec.Deviance, prDF}} {
+		want, err := impute.D2(c.by, c.df)
+		if err != nil {
+			t.Fatal(err)
+		}
+		g := c.got
+		if !g.OK || g.Name != c.name || g.Pooled != "D2" || g.DF != c.df || g.Chi2 != want.F*float64(c.df) || g.P != want.P || g.DF2 != want.DF2 {
+			t.Errorf("%s: %+v, want D2 %+v", c.name, g, want)
+		}
+	}
+	// The tables: the means of the sets' counts, so the observations add up
+	// to the rows of a set and observed and expected agree in total.
+	for _, tab := range []struct {
+		name     string
+		weight   []float64
+		obs, exp [][]float64
+	}{{"score groups", or.Lipsitz.Table.Weight, or.Lipsitz.Table.Observed, or.Lipsitz.Table.Expected}, {"patterns", ps.Weight, ps.Observed, ps.Expected}} {
+		n, o, e := 0.0, 0.0, 0.0
+		for g := range tab.weight {
+			n += tab.weight[g]
+			for j := range tab.obs[g] {
+				o += tab.obs[g][j]
+				e += tab.exp[g][j]
+			}
+		}
+		if math.Abs(n-float64(im.Rows)) > 1e-9 || math.Abs(o-n) > 1e-9 || math.Abs(e-n) > 1e-6 {
+			t.Errorf("%s: N %g, observed %g, expected %g, want %d rows", tab.name, n, o, e, im.Rows)
+		}
+	}
+}
+
+// checkGOFD2 pools the statistics R printed (v) by impute.D2 and compares
+// with mitml's D2: F (a negative F is 0 here, with p = 1), k, v, r and the
+// p-value of F(k, v). It returns the largest relative difference.
+func checkGOFD2(t *testing.T, v rscript.Values) float64 {
+	t.Helper()
+	worst := 0.0
+	cmp := func(what string, got, want float64) {
+		d := math.Abs(got - want)
+		if want != 0 {
+			d /= math.Abs(want)
+		}
+		worst = math.Max(worst, d)
+		if !(d <= 1e-12) {
+			t.Errorf("%s: %.17g, mitml %.17g", what, got, want)
+		}
+	}
+	for _, name := range []string{"lipsitz", "pearson", "deviance"} {
+		r := v.Get(t, name+"_d2") // F, k, v, r, p
+		got, err := impute.D2(v.Get(t, name+"_chi2"), int(r[1]))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if r[0] < 0 {
+			if got.F != 0 || got.P != 1 || got.Warnings == "" {
+				t.Errorf("%s: mitml's D2 is negative (%g); here F %g, p %g, warning %q", name, r[0], got.F, got.P, got.Warnings)
+			}
+		} else {
+			cmp(name+" F", got.F, r[0])
+		}
+		cmp(name+" k", float64(got.DF1), r[1])
+		cmp(name+" v", got.DF2, r[2])
+		cmp(name+" r", got.RIV, r[3])
+		cmp(name+" p", got.P, r[4])
+	}
+	return worst
+}
+
+// D2 on the goodness-of-fit statistics of a run agrees with mitml's D2,
+// frozen in testdata by the script that sits beside it.
+func TestPooledGOFAgainstMitmlFrozen(t *testing.T) {
+	v := rscript.FrozenBy(t, gofD2Script, gofD2Frozen, "cd runner/testdata && Rscript --vanilla gofd2.R")
+	t.Logf("largest relative difference from mitml's D2: %.2g", checkGOFD2(t, v))
+}
+
+// TestPooledGOFAgainstMitml runs testdata/gofd2.R with the mitml installed
+// here: D2 agrees with it, and it prints what the frozen file holds.
+func TestPooledGOFAgainstMitml(t *testing.T) {
+	rscript.Require(t)
+	if !rscript.HasPackage(t, "mitml") {
+		t.Skip("the R package mitml is not installed (Debian: apt-get install r-cran-mitml): the check against it is skipped")
+	}
+	v := rscript.Run(t, t.TempDir(), gofD2Script)
+	worst := checkGOFD2(t, v)
+	frozen := rscript.Frozen(t, gofD2Frozen)
+	for _, name := range []string{"lipsitz_d2", "pearson_d2", "deviance_d2"} {
+		a, b := v.Get(t, name), frozen.Get(t, name)
+		for j := range a {
+			if math.Abs(a[j]-b[j]) > 1e-12*math.Abs(b[j]) {
+				t.Errorf("%s[%d]: mitml here %.17g, frozen %.17g", name, j, a[j], b[j])
+			}
+		}
+	}
+	t.Logf("agreement with mitml's D2: %.2g (limit 1e-12)", worst)
+}
+
+// The pooled goodness-of-fit records say why they are not pooled: a
+// reason every set gives (sampling weights) as it is, another naming its
+// set, sets with other numbers of score groups, or other patterns.
+func TestPooledGoodnessOfFitNotPooled(t *testing.T) {
+	ok := fit.Test{Name: "lipsitz", OK: true, Chi2: 3, DF: 2}
+	why := fit.Test{Name: "lipsitz", Reason: likelihoodNote}
+	if got := setReason([]fit.Test{why, why}); got != likelihoodNote {
+		t.Errorf("shared reason: %q", got)
+	}
+	if got := setReason([]fit.Test{ok, why}); got != "in imputed set 2: "+likelihoodNote {
+		t.Errorf("reason of one set: %q", got)
+	}
+	table := func(groups int) *fit.ScoreGroups {
+		return &fit.ScoreGroups{Groups: groups, Categories: []string{"1", "2"}, Low: make([]float64, groups), High: make([]float64, groups),
+			Weight: make([]float64, groups), Observed: zeros(groups, 2), Expected: zeros(groups, 2)}
+	}
+	rec := &GOFPooling{}
+	lz := pooledLipsitz([]*fit.Lipsitz{{Test: ok, Table: table(3)}, {Test: ok, Table: table(2)}}, rec)
+	if lz.Test.OK || lz.Table != nil || !strings.Contains(lz.Test.Reason, "imputed set 2 has 2 groups of predicted score but set 1 has 3") {
+		t.Errorf("groups differ: %+v", lz)
+	}
+	lz = pooledLipsitz([]*fit.Lipsitz{{Test: why, Table: table(3)}, {Test: why, Table: table(3)}}, rec)
+	if lz.Test.OK || lz.Test.Reason != likelihoodNote || lz.Table == nil {
+		t.Errorf("sampling weights: %+v", lz)
+	}
+	split := func(patterns ...string) *PatternSplitRecord {
+		n := len(patterns)
+		return &PatternSplitRecord{Predictors: []string{"g"}, PatternSplit: &fit.PatternSplit{Groups: n, Categories: []string{"1", "2"}, Pattern: patterns,
+			Half: make([]string, n), Weight: make([]float64, n), Observed: zeros(n, 2), Expected: zeros(n, 2)}}
+	}
+	ps := pooledPatternSplit([]*PatternSplitRecord{split("g=a", "g=b"), split("g=a", "g=c")}, rec)
+	if ps.PatternSplit != nil || !strings.Contains(ps.NotComputed, "imputed set 2 differ from those of set 1") {
+		t.Errorf("patterns differ: %+v", ps)
+	}
+}
