@@ -9,6 +9,7 @@ import (
 	"strings"
 	"sync"
 	"sync/atomic"
+	"unsafe"
 )
 
 // Reading the rows of a CSV file in parallel. The bytes after the header
@@ -142,6 +143,9 @@ func (r *reader) chunkRows(raw []byte, chunks []chunk, rows int) (*Dataset, bool
 		c.t.codes = a.codes[c.row0:c.row0:(c.row0 + c.lines)]
 	}
 	fast := r.newFastPlan(t)
+	if fast != nil && !fast.delimEndsNumbers() {
+		fast = nil
+	}
 	if f := forEachUntil(len(chunks), func(i int) error {
 		chunks[i].err = r.parseChunk(&chunks[i], raw, fast)
 		return chunks[i].err
@@ -231,6 +235,10 @@ type arrays struct {
 
 func (r *reader) newArrays(rows, K int) *arrays {
 	a := &arrays{K: K, x: make([]float64, rows*K), y: make([]int, rows), lines: make([]int, rows), codes: make([]int64, rows)}
+	adviseHuge(a.x)
+	adviseHuge(a.y)
+	adviseHuge(a.lines)
+	adviseHuge(a.codes)
 	if a.hasWeights = r.opt.Weights != ""; a.hasWeights {
 		a.weights = make([]float64, rows)
 	}
@@ -297,7 +305,7 @@ func (a *arrays) join(out *Dataset, t *rowTally, chunks []chunk) {
 // parseChunk reads the lines of a chunk.
 func (r *reader) parseChunk(c *chunk, raw []byte, fast *fastPlan) error {
 	lr := &lineRecords{
-		s:      string(raw[c.lo:c.hi]),
+		s:      chunkText(raw, c),
 		line:   c.line - 1,
 		delim:  byte(r.opt.Dialect.delim()),
 		quotes: c.quotes,
@@ -305,14 +313,14 @@ func (r *reader) parseChunk(c *chunk, raw []byte, fast *fastPlan) error {
 	}
 	cr := *r
 	cr.cr = lr
-	for lr.next() {
-		c.d.RowsRead++
-		if fast != nil && (!c.quotes || strings.IndexByte(lr.cur, '"') < 0) {
-			if row, ok := cr.fastRow(fast, c.t, lr.cur); ok {
-				cr.settle(c.t, c.d, row)
-				continue
-			}
+	for {
+		if fast != nil {
+			cr.fastLines(fast, c, lr)
 		}
+		if !lr.next() {
+			break
+		}
+		c.d.RowsRead++
 		rec, err := lr.fields()
 		if err != nil {
 			return cr.csvErr(err, rec)
@@ -322,6 +330,15 @@ func (r *reader) parseChunk(c *chunk, raw []byte, fast *fastPlan) error {
 		}
 	}
 	return nil
+}
+
+// chunkText is the text of a chunk: its bytes of raw, not copied (the
+// bytes of a file being read are never changed).
+func chunkText(raw []byte, c *chunk) string {
+	if c.hi == c.lo {
+		return ""
+	}
+	return unsafe.String(&raw[c.lo], c.hi-c.lo)
 }
 
 // lineRecords are the records of a chunk, one per non-empty line.

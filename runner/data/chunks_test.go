@@ -228,6 +228,21 @@ func TestChunkedEdges(t *testing.T) {
 	} {
 		checkChunked(t, []byte(in), tab)
 	}
+	// A comma between fields and a decimal comma: an unquoted 2,5 is two
+	// cells, so the row has a field too many (it was read as 2.5, silently);
+	// quoted, it is the number 2.5.
+	commas := Options{Outcome: "y", Predictors: []string{"a"}, Dialect: Dialect{DecimalComma: true}}
+	for _, in := range []string{"y,a\n1,\"2,5\"\n2,3\n", "y,a\n1,2,5\n2,3\n"} {
+		checkChunked(t, []byte(in), commas)
+	}
+	d, err := Read(strings.NewReader("y,a\n1,\"2,5\"\n2,3\n"), "t.csv", commas)
+	if err != nil || d.X[0] != 2.5 {
+		t.Fatalf("quoted 2,5 with a decimal comma: %v, %v", d, err)
+	}
+	_, err = Read(strings.NewReader("y,a\n1,2,5\n2,3\n"), "t.csv", commas)
+	if want := "t.csv:2: row has 3 fields but the header has 2"; err == nil || err.Error() != want {
+		t.Fatalf("unquoted 2,5 with a decimal comma: got %v, want %s", err, want)
+	}
 }
 
 // decimal gives bit for bit strconv.ParseFloat's value, and accepts only

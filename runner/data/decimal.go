@@ -1,7 +1,9 @@
 package data
 
 import (
+	"encoding/binary"
 	"math"
+	"math/bits"
 	"strconv"
 	"strings"
 	"unsafe"
@@ -10,6 +12,13 @@ import (
 // pow10 are the powers of ten a float64 holds exactly.
 var pow10 = [...]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10,
 	1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22}
+
+// signs says of each byte whether it is a sign (bit 0) and a minus (bit
+// 1), so that the signs of numbers, which vary at random, take no branch.
+var signs = [256]uint8{'+': 1, '-': 3}
+
+// pow10u are the powers of ten up to 10^8 as integers.
+var pow10u = [...]uint64{1, 10, 100, 1000, 10000, 100000, 1000000, 10000000, 100000000}
 
 // decimal reads s as a plain decimal number: an optional sign, digits with
 // at most one decimal mark (mark, '.' or ','), and an optional exponent (e
@@ -26,45 +35,62 @@ var pow10 = [...]float64{1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10,
 // Nothing is allocated but for a number of more than 64 bytes with a
 // decimal comma.
 func decimal(s string, mark byte) (float64, bool) {
-	v, end, ok := scanDecimal(s, 0, mark)
+	v, end, ok := scanDecimal(s, 0, len(s), mark)
 	return v, ok && end == len(s)
 }
 
 // scanDecimal reads the plain decimal number that starts at s[i] (see
-// decimal), stopping at the first byte that cannot continue it, and
-// returns its value and where it ends; false when there is no number
-// there, or it is beyond float64's range. Every piece of state is a local
-// variable, so that the loops over the digits stay in registers (this is
-// the reader's innermost loop).
-func scanDecimal(s string, i int, mark byte) (v float64, end int, ok bool) {
+// decimal) and ends at hi at the latest, stopping at the first byte that
+// cannot continue it, and returns its value and where it ends; false when
+// there is no number there, or it is beyond float64's range. The byte at
+// hi, if any, must not be a digit (a line end): runs of digits are read
+// eight bytes at a time (digitRun), and may look past hi. Every piece of
+// state is a local variable, so that it stays in registers (this is the
+// reader's innermost loop), and the signs and zeros of numbers, which
+// vary at random in data, take no branch.
+func scanDecimal(s string, i, hi int, mark byte) (v float64, end int, ok bool) {
 	start := i
-	neg := false
-	if i < len(s) && (s[i] == '+' || s[i] == '-') {
-		neg = s[i] == '-'
-		i++
+	var sign uint64 // the sign bit of a negative number
+	if i < hi {
+		c := s[i]
+		sign = uint64(signs[c]>>1) << 63
+		i += int(signs[c] & 1)
 	}
-	d0 := i
-	mant, i := digits(s, i, 0)
-	sig, exp := i-d0, 0
-	if i < len(s) && s[i] == mark {
+	var mant uint64
+	var sig int
+	// The run of digits before the mark: in one word when it is shorter
+	// than eight digits and eight bytes remain (the usual case).
+	if w, nd := word(s, i); nd != 0 {
+		n := bits.TrailingZeros64(nd) >> 3
+		mant, sig, i = eightDigits(w<<(64-8*n)), n, i+n
+	} else {
+		mant, sig, i = digitRun(s, i, hi, 0)
+	}
+	exp := 0
+	if i < hi && s[i] == mark {
 		i++
-		f0 := i
-		mant, i = digits(s, i, mant)
-		exp = f0 - i
-		sig += i - f0
+		var n int
+		if w, nd := word(s, i); nd != 0 {
+			n = bits.TrailingZeros64(nd) >> 3
+			mant, i = mant*pow10u[n]+eightDigits(w<<(64-8*n)), i+n
+		} else {
+			mant, n, i = digitRun(s, i, hi, mant)
+		}
+		sig += n
+		exp = -n
 	}
 	if sig == 0 {
 		return 0, i, false
 	}
-	if i < len(s) && s[i]|0x20 == 'e' {
+	if i < hi && s[i]|0x20 == 'e' {
 		i++
 		eneg := false
-		if i < len(s) && (s[i] == '+' || s[i] == '-') {
+		if i < hi && (s[i] == '+' || s[i] == '-') {
 			eneg = s[i] == '-'
 			i++
 		}
 		e0, e := i, 0
-		for ; i < len(s) && s[i]-'0' <= 9; i++ {
+		for ; i < hi && s[i]-'0' <= 9; i++ {
 			if e < 1e6 {
 				e = e*10 + int(s[i]-'0')
 			}
@@ -77,44 +103,68 @@ func scanDecimal(s string, i int, mark byte) (v float64, end int, ok bool) {
 		}
 		exp += e
 	}
-	if sig <= 19 {
-		if mant == 0 {
-			if neg {
-				return math.Copysign(0, -1), i, true
-			}
-			return 0, i, true
+	if sig <= 19 && mant <= 1<<53 && exp >= -22 && exp <= 22 {
+		v = float64(mant)
+		if exp < 0 {
+			v /= pow10[-exp]
+		} else if exp > 0 {
+			v *= pow10[exp]
 		}
-		if mant <= 1<<53 && exp >= -22 && exp <= 22 {
-			v = float64(mant)
-			if exp >= 0 {
-				v *= pow10[exp]
-			} else {
-				v /= pow10[-exp]
-			}
-			if neg {
-				v = -v
-			}
-			return v, i, true
-		}
+		return math.Float64frombits(math.Float64bits(v) | sign), i, true
 	}
 	v, ok = slowDecimal(s[start:i], mark)
 	return v, i, ok
 }
 
-// digits reads the run of decimal digits at s[i:] onto mant (mant*10 +
+// word is the eight bytes of s from i, the first in the lowest byte, and
+// a mask of those that are not digits (a byte of 0x80 for each, so that
+// the run of digits is the mask's trailing zeros over eight); a mask of
+// zero when fewer than eight bytes remain, as when all eight are digits.
+func word(s string, i int) (w, nd uint64) {
+	if i+8 > len(s) {
+		return 0, 0
+	}
+	w = binary.LittleEndian.Uint64(unsafe.Slice(unsafe.StringData(s[i:]), 8))
+	// A byte is a digit when its high half is 3 and adding 6 keeps it so.
+	return w, (w&0xF0F0F0F0F0F0F0F0 ^ 0x3030303030303030) | ((w+0x0606060606060606)&0xF0F0F0F0F0F0F0F0 ^ 0x3030303030303030)
+}
+
+// digitRun reads the run of decimal digits at s[i:] onto mant (mant*10 +
 // digit for each; it wraps beyond 19 digits, which the caller does not
-// use) and returns the new mant and where the run ends. (Reading eight
-// bytes at a time with word operations was tried: on the short numbers of
-// data files it is slower than this loop, whose branches predict well.)
-func digits(s string, i int, mant uint64) (uint64, int) {
-	for ; i < len(s); i++ {
+// use) and returns the new mant, the run's length and where it ends. It
+// reads eight bytes at a time while eight remain in s (finding the end of
+// the run and the value of its digits with word operations, so that the
+// varying lengths of numbers take no branch), then byte by byte up to hi.
+func digitRun(s string, i, hi int, mant uint64) (uint64, int, int) {
+	start := i
+	for i+8 <= len(s) {
+		w, nd := word(s, i)
+		if nd == 0 {
+			mant = mant*1e8 + eightDigits(w)
+			i += 8
+			continue
+		}
+		n := bits.TrailingZeros64(nd) >> 3
+		// The n digits moved to the top bytes; the bytes below read as zeros.
+		mant = mant*pow10u[n] + eightDigits(w<<(64-8*n))
+		return mant, i + n - start, i + n
+	}
+	for ; i < hi; i++ {
 		c := s[i] - '0'
 		if c > 9 {
 			break
 		}
 		mant = mant*10 + uint64(c)
 	}
-	return mant, i
+	return mant, i - start, i
+}
+
+// eightDigits is the value of the eight digit characters of w, the first
+// in its lowest byte (bytes of zero read as the digit 0).
+func eightDigits(w uint64) uint64 {
+	w = (w & 0x0F0F0F0F0F0F0F0F) * (10<<8 + 1) >> 8
+	w = (w & 0x00FF00FF00FF00FF) * (100<<16 + 1) >> 16
+	return (w & 0x0000FFFF0000FFFF) * (10000<<32 + 1) >> 32
 }
 
 // slowDecimal is strconv.ParseFloat of a plain decimal number (with a

@@ -87,6 +87,16 @@ func (r *reader) newFastPlan(t *rowTally) *fastPlan {
 	return p
 }
 
+// delimEndsNumbers reports whether the delimiter cannot continue a number
+// (it is not a digit, a sign, a point, the decimal mark or an exponent's
+// e), so that reading a number from the text stops at the delimiter as
+// splitting the line at the delimiters would: not so for a comma between
+// fields with a decimal comma, where 2,5 is two cells unless quoted.
+func (p *fastPlan) delimEndsNumbers() bool {
+	c := p.delim
+	return !(c >= '0' && c <= '9' || c == '+' || c == '-' || c == '.' || c == p.mark || c|0x20 == 'e')
+}
+
 // valid reports whether the fast way reads cell as a valid value of f.
 func (p *fastPlan) valid(f *fastField, cell string) bool {
 	switch f.kind {
@@ -103,37 +113,96 @@ func (p *fastPlan) valid(f *fastField, cell string) bool {
 	return true
 }
 
-// fastRow reads a line the fast way into a row (and t.xs); false when the
-// line needs the general way.
-func (r *reader) fastRow(p *fastPlan, t *rowTally, line string) (cells, bool) {
+// fastLines reads the lines of a chunk's text from lr's position the fast
+// way, while it can: each line straight from the text into the chunk's
+// next row (its predictor values written where they stay); empty lines
+// are skipped. It stops at the end of the text or before a line the fast
+// way does not take (a line with a quote character, any line fastRow
+// gives up on), which the caller reads the general way; lr is left before
+// that line.
+func (r *reader) fastLines(p *fastPlan, c *chunk, lr *lineRecords) {
+	s, pos, line := lr.s, lr.pos, lr.line
+	d, t := c.d, c.t
+	K := d.K
+	for pos < len(s) {
+		next, hi := len(s), len(s)
+		if e := strings.IndexByte(s[pos:], '\n'); e >= 0 {
+			hi = pos + e
+			next = hi + 1
+		}
+		if hi > pos && s[hi-1] == '\r' {
+			hi--
+		}
+		if hi == pos { // an empty line, skipped as the CSV reader skips it
+			line++
+			pos = next
+			continue
+		}
+		if c.quotes && strings.IndexByte(s[pos:hi], '"') >= 0 {
+			break
+		}
+		n := len(d.X)
+		x := d.X[n : n+K]
+		row, ok := r.fastRow(p, t, s, pos, hi, x)
+		if !ok {
+			break
+		}
+		line++
+		d.RowsRead++
+		if row.w == 0 {
+			t.zeroWeight++
+		} else {
+			d.X = d.X[:n+K]
+			r.keepValues(t, d, row, line)
+		}
+		pos = next
+	}
+	lr.pos, lr.line = pos, line
+}
+
+// fastRow reads the line s[i:hi] the fast way into a row (its predictor
+// values into x); false when the line needs the general way. The byte at
+// hi, if any, is a line end.
+func (r *reader) fastRow(p *fastPlan, t *rowTally, s string, i, hi int, x []float64) (cells, bool) {
 	row := cells{miss: -1, w: 1}
 	last := len(p.fields) - 1
-	hi := len(line)
-	i := 0 // start of the current field
 	for fi := range p.fields {
 		f := &p.fields[fi]
+		if f.kind == fastNumber && !f.check {
+			// The usual cell: a number, then the delimiter or the line end.
+			if v, e, ok := scanDecimal(s, i, hi, p.mark); ok && (e == hi) == (fi == last) && (e == hi || s[e] == p.delim) {
+				x[f.pos] = v
+				i = e + 1
+				continue
+			}
+		}
 		var cell string // the field, trimmed
 		var end int     // where the field ends: the next delimiter or the end of the line
 		var v float64
 		ok := true
 		switch f.kind {
 		case fastNumber, fastWeight, fastOffset:
-			i = p.skipSpace(line, i)
+			if i < hi && isSpaceByte(s[i]) {
+				i = p.skipSpace(s, i, hi)
+			}
 			var e int
-			v, e, ok = scanDecimal(line, i, p.mark)
-			end = p.skipSpace(line, e)
-			if !ok || end < hi && line[end] != p.delim {
+			v, e, ok = scanDecimal(s, i, hi, p.mark)
+			end = e
+			if end < hi && s[end] != p.delim {
+				end = p.skipSpace(s, end, hi)
+			}
+			if !ok || end < hi && s[end] != p.delim {
 				return row, false
 			}
-			cell = line[i:e]
+			cell = s[i:e]
 		default:
-			if end = strings.IndexByte(line[i:], p.delim); end < 0 {
+			if end = strings.IndexByte(s[i:hi], p.delim); end < 0 {
 				end = hi
 			} else {
 				end += i
 			}
 			if f.kind != fastSkip {
-				cell = trimASCII(line[i:end])
+				cell = trimASCII(s[i:end])
 				if cell != "" && (cell[0] >= 0x80 || cell[len(cell)-1] >= 0x80) {
 					return row, false // perhaps white space beyond ASCII, which the general way trims
 				}
@@ -151,11 +220,11 @@ func (r *reader) fastRow(p *fastPlan, t *rowTally, line string) (cells, bool) {
 		case fastLabel:
 			row.y, ok = f.levels[cell]
 		case fastNumber:
-			t.xs[f.pos] = v
+			x[f.pos] = v
 		case fastLevel:
 			var l int
 			l, ok = f.levels[cell]
-			t.xs[f.pos] = float64(l)
+			x[f.pos] = float64(l)
 		case fastWeight:
 			row.w = v
 			ok = ok && v >= 0
@@ -171,9 +240,10 @@ func (r *reader) fastRow(p *fastPlan, t *rowTally, line string) (cells, bool) {
 	return row, true
 }
 
-// skipSpace skips ASCII white space other than the delimiter from s[i].
-func (p *fastPlan) skipSpace(s string, i int) int {
-	for i < len(s) && isSpaceByte(s[i]) && s[i] != p.delim {
+// skipSpace skips ASCII white space other than the delimiter from s[i],
+// up to hi.
+func (p *fastPlan) skipSpace(s string, i, hi int) int {
+	for i < hi && isSpaceByte(s[i]) && s[i] != p.delim {
 		i++
 	}
 	return i

@@ -159,6 +159,7 @@ const readBlock = 4 << 20
 // start, in one stream, and reports any error.
 func readBlocks(f *os.File, size int64) ([]byte, bool) {
 	raw := make([]byte, size)
+	adviseHuge(raw)
 	n := int((size + readBlock - 1) / readBlock)
 	var bad atomic.Bool
 	forEach(n, func(i int) {

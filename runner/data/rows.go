@@ -311,20 +311,26 @@ func (t *rowTally) countIncomplete(row cells) {
 
 // keepRow appends a complete row with a positive weight to the data set.
 func (r *reader) keepRow(t *rowTally, d *Dataset, row cells) {
-	opt := &r.opt
 	line, _ := r.cr.FieldPos(0)
-	for _, c := range r.cols {
-		if len(t.levelSeen) == 0 {
-			break
-		}
-		if c.role == rolePredictor && t.levelSeen[c.name] != nil && !math.IsNaN(t.xs[c.pos]) {
-			t.levelSeen[c.name][int(t.xs[c.pos])] += row.w
+	d.X = append(d.X, t.xs...)
+	r.keepValues(t, d, row, line)
+}
+
+// keepValues appends all but the predictor values of a kept row, which
+// end d.X, to the data set.
+func (r *reader) keepValues(t *rowTally, d *Dataset, row cells, line int) {
+	opt := &r.opt
+	if len(t.levelSeen) > 0 {
+		xs := d.X[len(d.X)-d.K:]
+		for _, c := range r.cols {
+			if c.role == rolePredictor && t.levelSeen[c.name] != nil && !math.IsNaN(xs[c.pos]) {
+				t.levelSeen[c.name][int(xs[c.pos])] += row.w
+			}
 		}
 	}
 	d.Lines = append(d.Lines, line)
 	d.Y = append(d.Y, row.y)
 	t.codes = append(t.codes, row.code)
-	d.X = append(d.X, t.xs...)
 	if opt.Weights != "" {
 		d.Weights = append(d.Weights, row.w)
 	}

@@ -110,7 +110,7 @@ func ValidateDialect(path string, rules []Rule, missingTokens []string, d Dialec
 			found := make([]ValidationError, len(chunks))
 			if f := forEachUntil(len(chunks), func(i int) error {
 				c := &chunks[i]
-				lr := &lineRecords{s: string(r.raw[c.lo:c.hi]), line: c.line - 1, delim: byte(r.opt.Dialect.delim()), quotes: c.quotes, width: r.width}
+				lr := &lineRecords{s: chunkText(r.raw, c), line: c.line - 1, delim: byte(r.opt.Dialect.delim()), quotes: c.quotes, width: r.width}
 				cr := *r
 				cr.cr = lr
 				c.err = cr.validateRecords(cols, &found[i])
