@@ -5,9 +5,9 @@ import (
 	"ordplan/runner/fit"
 )
 
-// lipsitzOverParts is why a fit summed over partitions has no Lipsitz
-// test.
-const lipsitzOverParts = "not computed for a fit over partitions: the test refits the model with indicators of groups of predicted score, which needs every row in one place"
+// lipsitzOverParts is why a fit summed over parts held by queue workers
+// has no Lipsitz test.
+const lipsitzOverParts = "not computed for a fit over parts held by queue workers: the test refits the model with indicators of groups of predicted score, which needs every row in one place (ordplan fit --parts without --queue reads the parts here and computes it)"
 
 // PartitionedChecks gives the checks of a fit summed over the partition
 // files parts (whole: what the parts hold together), as FitOneChecked
@@ -50,7 +50,7 @@ func PartitionedChecks(s SingleFit, res *fit.Result, parts []string, whole fit.W
 	}
 	o := fit.OverallFitSpread(res, null, &spread)
 	if null == nil {
-		o.LR = fit.Test{Name: o.LR.Name, Reason: "not computed for a fit over partitions with an offset: the thresholds-only model would have to be fitted over the partitions too"}
+		o.LR = fit.Test{Name: o.LR.Name, Reason: "not computed for a fit over parts held by queue workers with an offset: the thresholds-only model would have to be fitted over the parts too"}
 	}
 	return &SingleChecks{
 		Overall:      OverallRecord{Model: res.Name, Null: fit.ModelID(res.Model.ComparisonName(), "thresholds-only", res.Model.Link), Overall: o},

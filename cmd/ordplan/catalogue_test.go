@@ -784,7 +784,7 @@ func catalogue(dir string) (items []badInput) {
 				}
 			}},
 
-		// Checked before any data is read: the data's own problem (a text
+		// Checked before any data row is read: the data's own problem (a text
 		// value where a number belongs) would be reported otherwise.
 		{id: "O4", name: "user's own file in the output folder, found before the data are read", args: []string{"run"}, plan: edit("file: d.csv", "file: text.csv"), code: 1,
 			setup: func(t *testing.T, dir, id string) {

@@ -193,7 +193,7 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 // defineFitFlags declares the flags of `ordplan fit` on fs.
 func defineFitFlags(fs *flag.FlagSet) *fitFlags {
 	f := &fitFlags{
-		dataFile:    fs.String("data", "", "the data file (required): CSV text with a header line, an .xlsx workbook (*.xlsx) or a flat Parquet file (*.parquet)"),
+		dataFile:    fs.String("data", "", "the data file (required unless --parts): CSV text with a header line, an .xlsx workbook (*.xlsx) or a flat Parquet file (*.parquet)"),
 		outcome:     fs.String("outcome", "", "outcome column (required)"),
 		categories:  fs.String("categories", "", "the outcome's category labels in order, lowest first (default: integer codes sorted)"),
 		predictors:  fs.String("predictors", "", "predictor terms, comma separated: columns, or the compact forms of categorical columns, transformations and interactions (see below)"),
@@ -347,7 +347,7 @@ func (f *fitFlags) baselineOf(res *fit.Result) (*fit.Baseline, error) {
 
 // print writes the fit as one JSON object or as the tables (below the
 // summary of the data sum), with the checks of the fit (nil when it has no
-// finite maximum); a fit over partitions prints through it too.
+// finite maximum); a fit over parts on queue workers prints through it too.
 func (f *fitFlags) print(stdout io.Writer, res *fit.Result, sum render.DataSummary, base *fit.Baseline, checks *runner.SingleChecks) error {
 	if *f.asJSON {
 		rec := runner.Record(res)

@@ -118,7 +118,7 @@ func writeAll(dir string, names []string, files map[string][]byte) error {
 const recordFile = "run.json"
 
 // claimOutput locks the output folder (lockOutput) and checks at once,
-// before any data is read or fitted, the outputs whose names are known
+// before any data row is read or fitted, the outputs whose names are known
 // before the run computes (fixed) and the record: a file there under one
 // of these names that no earlier run left as it is stops the run (O4).
 // Names known only from the results are checked again when written

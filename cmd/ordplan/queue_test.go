@@ -398,7 +398,7 @@ func TestFitPartitionsThroughWorkers(t *testing.T) {
 			t.Errorf("%v: the partitioned fit prints otherwise than the local one:\n%s\n---\n%s", extra, local, dist)
 		}
 		if !strings.HasPrefix(llz, "Lipsitz test (10 groups of predicted score): chi2(9) = ") ||
-			dlz != "Lipsitz test: not tested: not computed for a fit over partitions: the test refits the model with indicators of groups of predicted score, which needs every row in one place" {
+			dlz != "Lipsitz test: not tested: not computed for a fit over parts held by queue workers: the test refits the model with indicators of groups of predicted score, which needs every row in one place (ordplan fit --parts without --queue reads the parts here and computes it)" {
 			t.Errorf("%v: Lipsitz lines %q and %q", extra, llz, dlz)
 		}
 		for _, want := range []string{"Against the thresholds-only model (log-likelihood ", "likelihood-ratio chi2(", "Pseudo-R2: McFadden "} {
