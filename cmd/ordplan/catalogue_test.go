@@ -772,60 +772,28 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("predictions files: %v", m)
 				}
 			}},
-		{id: "O4", name: "user's own file in the output folder under an output's name", args: []string{"run"}, plan: goodPlan, code: 1,
-			setup: func(t *testing.T, dir, id string) {
-				os.MkdirAll(filepath.Join(dir, "O4-out"), 0o755)
-				os.WriteFile(filepath.Join(dir, "O4-out", "report.md"), []byte("my notes\n"), 0o644)
-			},
-			want: []string{"O4-out: report.md is not as an earlier ordplan run there left it (your own file, or an output changed since); ordplan does not overwrite it: move it away, or give another --out"},
-			check: func(t *testing.T, dir, out, errs string) {
-				if b, _ := os.ReadFile(filepath.Join(dir, "O4-out", "report.md")); string(b) != "my notes\n" {
-					t.Errorf("the user's report.md was overwritten: %q", b)
-				}
-			}},
-
+		withUsersFile(badInput{id: "O4", name: "user's own file in the output folder under an output's name", args: []string{"run"}, plan: goodPlan, code: 1,
+			want: []string{"O4-out: report.md is not as an earlier ordplan run there left it (your own file, or an output changed since); ordplan does not overwrite it: move it away, or give another --out"}},
+			"O4-out", "report.md", "my notes\n"),
 		// Checked before any data row is read: the data's own problem (a text
 		// value where a number belongs) would be reported otherwise.
-		{id: "O4", name: "user's own file in the output folder, found before the data are read", args: []string{"run"}, plan: edit("file: d.csv", "file: text.csv"), code: 1,
-			setup: func(t *testing.T, dir, id string) {
-				os.MkdirAll(filepath.Join(dir, "O4-out"), 0o755)
-				os.WriteFile(filepath.Join(dir, "O4-out", "report.md"), []byte("my notes\n"), 0o644)
-				os.WriteFile(filepath.Join(dir, "O4-out", "report.html"), []byte("<p>my page</p>\n"), 0o644)
-			},
+		withUsersFile(withUsersFile(badInput{id: "O4", name: "user's own file in the output folder, found before the data are read", args: []string{"run"}, plan: edit("file: d.csv", "file: text.csv"), code: 1,
 			want: []string{"O4-out: report.html and report.md are not as an earlier ordplan run there left it"}},
-		{id: "O4", name: "user's own power.md in the folder of ordplan power, found before simulating",
+			"O4-out", "report.md", "my notes\n"), "O4-out", "report.html", "<p>my page</p>\n"),
+		// The subset of A14 stops a simulation: the folder is checked first.
+		withUsersFile(badInput{id: "O4", name: "user's own power.md in the folder of ordplan power, found before simulating",
 			args: []string{"power", "--n", "100", "--replicates", "2", "--out", filepath.Join(dir, "O4-power")}, code: 1,
-			// The subset of A14 stops a simulation: the folder is checked first.
 			plan: edit("predictors:", "subset:\n  - {column: a, at_least: 5}\npredictors:") + assumed("{a: 0.2}", ""),
-			setup: func(t *testing.T, dir, id string) {
-				os.MkdirAll(filepath.Join(dir, "O4-power"), 0o755)
-				os.WriteFile(filepath.Join(dir, "O4-power", "power.md"), []byte("my sample size notes\n"), 0o644)
-			},
-			want: []string{"O4-power: power.md is not as an earlier ordplan run there left it (your own file, or an output changed since); ordplan does not overwrite it: move it away, or give another --out"},
-			check: func(t *testing.T, dir, out, errs string) {
-				if b, _ := os.ReadFile(filepath.Join(dir, "O4-power", "power.md")); string(b) != "my sample size notes\n" {
-					t.Errorf("the user's power.md was overwritten: %q", b)
-				}
-			}},
-		{id: "O4", name: "user's own file under the name of the simulated data of ordplan rehearse",
-			args: []string{"rehearse", "--out", filepath.Join(dir, "O4-rehearsal")}, code: 1,
-			plan: goodPlan + assumed("{a: 0.2}", ""),
-			setup: func(t *testing.T, dir, id string) {
-				os.MkdirAll(filepath.Join(dir, "O4-rehearsal"), 0o755)
-				os.WriteFile(filepath.Join(dir, "O4-rehearsal", "simulated-data.csv"), []byte("y,a,b\n1,0,0\n"), 0o644)
-			},
+			want: []string{"O4-power: power.md is not as an earlier ordplan run there left it (your own file, or an output changed since); ordplan does not overwrite it: move it away, or give another --out"}},
+			"O4-power", "power.md", "my sample size notes\n"),
+		withUsersFile(badInput{id: "O4", name: "user's own file under the name of the simulated data of ordplan rehearse",
+			args: []string{"rehearse", "--out", filepath.Join(dir, "O4-rehearsal")}, code: 1, plan: goodPlan + assumed("{a: 0.2}", ""),
 			want: []string{"O4-rehearsal: simulated-data.csv is not as an earlier ordplan run there left it"}},
-		{id: "O5", name: "user's own run.json in the output folder", args: []string{"run"}, plan: goodPlan, code: 1,
-			setup: func(t *testing.T, dir, id string) {
-				os.MkdirAll(filepath.Join(dir, "O5-out"), 0o755)
-				os.WriteFile(filepath.Join(dir, "O5-out", "run.json"), []byte(`{"my": "settings"}`+"\n"), 0o644)
-			},
-			want: []string{"O5-out: run.json is not as an earlier ordplan run there left it (your own file, or an output changed since); ordplan does not overwrite it: move it away, or give another --out"},
-			check: func(t *testing.T, dir, out, errs string) {
-				if b, _ := os.ReadFile(filepath.Join(dir, "O5-out", "run.json")); string(b) != `{"my": "settings"}`+"\n" {
-					t.Errorf("the user's run.json was overwritten: %q", b)
-				}
-			}},
+			"O4-rehearsal", "simulated-data.csv", "y,a,b\n1,0,0\n"),
+		withUsersFile(badInput{id: "O5", name: "user's own run.json in the output folder", args: []string{"run"}, plan: goodPlan, code: 1,
+			want: []string{"O5-out: run.json is not as an earlier ordplan run there left it (your own file, or an output changed since); ordplan does not overwrite it: move it away, or give another --out"}},
+			"O5-out", "run.json", `{"my": "settings"}`+"\n"),
+
 		// The queue.
 		{id: "Q1", name: "queue without the shared secret", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-secret-file", ""}, code: 2,
 			want: []string{"ordplan worker: --queue needs the shared secret: give --queue-secret-file FILE or set ORDPLAN_QUEUE_SECRET_FILE"}},
@@ -855,6 +823,29 @@ func catalogue(dir string) (items []badInput) {
 	items = append(items, termItems(dir)...)
 	items = append(items, commandLineItems(dir)...)
 	return items
+}
+
+// withUsersFile adds to the item a file of the user's, written into the
+// output folder (below the catalogue's folder) before the command runs,
+// and checks that the command leaves it as it was.
+func withUsersFile(it badInput, folder, name, content string) badInput {
+	setup, check := it.setup, it.check
+	it.setup = func(t *testing.T, dir, id string) {
+		if setup != nil {
+			setup(t, dir, id)
+		}
+		os.MkdirAll(filepath.Join(dir, folder), 0o755)
+		os.WriteFile(filepath.Join(dir, folder, name), []byte(content), 0o644)
+	}
+	it.check = func(t *testing.T, dir, out, errs string) {
+		if check != nil {
+			check(t, dir, out, errs)
+		}
+		if b, _ := os.ReadFile(filepath.Join(dir, folder, name)); string(b) != content {
+			t.Errorf("the user's %s was overwritten: %q", name, b)
+		}
+	}
+	return it
 }
 
 func TestBadInputCatalogue(t *testing.T) {
