@@ -63,6 +63,44 @@ func targets(w io.Writer, n, gridN, repeats int) {
 	}
 
 	five := generate(n, K, 5, 42)
+	for _, r := range iterationRows(bin, five, repeats) {
+		add(r)
+	}
+
+	if gridN != n {
+		five = generate(gridN, K, 5, 42)
+	}
+	g := gridTimes(five, K)
+	add(targetRow{fmt.Sprintf("the 13-model grid, n = %s, on %d cores / its slowest single fit (on %d cores)", count(gridN), runtime.GOMAXPROCS(0), runtime.GOMAXPROCS(0)),
+		fmt.Sprintf("%.2f (grid %.2f s, CPU %.2f s, %.1f passes over the data (%.1f fitted one by one); slowest %s %.2f s, CPU %.2f s, %.1f passes; CPU ratio %.2f)",
+			g.grid/g.slowest, g.grid, g.gridCPU, g.gridPasses, g.singlePasses, g.name, g.slowest, g.slowestCPU, g.slowestPasses, g.gridCPU/g.slowestCPU),
+		g.grid / g.slowest, gridLimit})
+
+	for _, c := range []string{"binary", "cumulative/nonparallel"} {
+		res, err := memoryChild(c, n)
+		if err != nil {
+			fmt.Fprintln(os.Stderr, "bench: memory:", err)
+			continue
+		}
+		add(targetRow{fmt.Sprintf("%s, n = %s: peak resident memory of the whole process / X", c, count(n)),
+			fmt.Sprintf("%.2f (%.0f MB; peak heap / X %.2f; X = %.0f MB)", float64(res.RSS)/xBytes, float64(res.RSS)/1e6, float64(res.Heap)/xBytes, xBytes/1e6),
+			float64(res.RSS) / xBytes, memLimit})
+	}
+
+	fmt.Fprintf(w, "| target | measured | limit | ratio to limit |\n|---|---|---|---|\n")
+	for _, r := range rows {
+		fmt.Fprintf(w, "| %s | %s | %s | %.2f |\n", r.what, r.measured, strconv.FormatFloat(r.limit, 'g', -1, 64), r.value/r.limit)
+	}
+}
+
+// iterationRows measures one Newton iteration of the four parallel-effects
+// models (binary logit on bin, the three comparisons on five) against one
+// X'WX plus one kernel pass, each part the best of repeats runs on one
+// worker.
+func iterationRows(bin, five *fit.Data, repeats int) []targetRow {
+	K := len(bin.Predictors)
+	var rows []targetRow
+	binary := fit.Model{Comparison: fit.Cumulative, Link: fit.Logit, Effects: make([]fit.Effect, K)}
 	for _, c := range []struct {
 		name string
 		d    *fit.Data
@@ -92,31 +130,21 @@ func targets(w io.Writer, n, gridN, repeats int) {
 		bk, _ := bestMedian(kern)
 		bc, _ := bestMedian(cross)
 		ratio := bi / (br + bk)
-		add(targetRow{fmt.Sprintf("%s: one iteration / (one X'WX + one kernel pass), one worker", c.name),
+		r := targetRow{fmt.Sprintf("%s: one iteration / (one X'WX + one kernel pass), one worker", c.name),
 			fmt.Sprintf("%.2f (best of %d: iteration %.0f ms, X'WX %.0f ms, kernels %.0f ms; cross-products inside the iteration %.0f ms)",
-				ratio, len(iter), bi, br, bk, bc), ratio, iterLimit})
+				ratio, len(iter), bi, br, bk, bc), ratio, iterLimit}
+		fmt.Fprintf(os.Stderr, "bench: %s: %s\n", r.what, r.measured)
+		rows = append(rows, r)
 	}
+	return rows
+}
 
-	if gridN != n {
-		five = generate(gridN, K, 5, 42)
-	}
-	g := gridTimes(five, K)
-	add(targetRow{fmt.Sprintf("the 13-model grid, n = %s, on %d cores / its slowest single fit (on %d cores)", count(gridN), runtime.GOMAXPROCS(0), runtime.GOMAXPROCS(0)),
-		fmt.Sprintf("%.2f (grid %.2f s, CPU %.2f s, %.1f passes over the data (%.1f fitted one by one); slowest %s %.2f s, CPU %.2f s, %.1f passes; CPU ratio %.2f)",
-			g.grid/g.slowest, g.grid, g.gridCPU, g.gridPasses, g.singlePasses, g.name, g.slowest, g.slowestCPU, g.slowestPasses, g.gridCPU/g.slowestCPU),
-		g.grid / g.slowest, gridLimit})
-
-	for _, c := range []string{"binary", "cumulative/nonparallel"} {
-		res, err := memoryChild(c, n)
-		if err != nil {
-			fmt.Fprintln(os.Stderr, "bench: memory:", err)
-			continue
-		}
-		add(targetRow{fmt.Sprintf("%s, n = %s: peak resident memory of the whole process / X", c, count(n)),
-			fmt.Sprintf("%.2f (%.0f MB; peak heap / X %.2f; X = %.0f MB)", float64(res.RSS)/xBytes, float64(res.RSS)/1e6, float64(res.Heap)/xBytes, xBytes/1e6),
-			float64(res.RSS) / xBytes, memLimit})
-	}
-
+// iterationReport measures the targets' iteration rows alone (-only
+// iteration) at n rows and writes them as a table.
+func iterationReport(w io.Writer, n, repeats int) {
+	const K = 10
+	fmt.Fprintf(w, "Load average when the run began: %s (on %d cores).\n\n", loadAverage(), runtime.NumCPU())
+	rows := iterationRows(generate(n, K, 2, 11), generate(n, K, 5, 42), repeats)
 	fmt.Fprintf(w, "| target | measured | limit | ratio to limit |\n|---|---|---|---|\n")
 	for _, r := range rows {
 		fmt.Fprintf(w, "| %s | %s | %s | %.2f |\n", r.what, r.measured, strconv.FormatFloat(r.limit, 'g', -1, 64), r.value/r.limit)

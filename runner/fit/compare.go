@@ -120,44 +120,70 @@ func (k *kernel) cumulative(L []float64, c int, g, h []float64) (float64, bool) 
 		k.put(g, h, q-1, t)
 		return t.v, !math.IsInf(t.v, -1) && !math.IsNaN(t.v)
 	}
-	b, a := L[c], L[c-1]
-	if !(b > a) {
-		return math.Inf(-1), false
+	m, ok := k.between(L[c-1], L[c], g != nil || h != nil)
+	if !ok || (g == nil && h == nil) {
+		return m.lp, ok
 	}
-	var lp, lfa, qa, lfb, qb float64
-	if k.link == Logit {
-		// Two exponentials and two logarithms serve the probability and
-		// both densities (the same values as the general path below).
-		pa, pb := newLogitPoint(a), newLogitPoint(b)
-		lp = logitDiff(pa, pb)
-		lfa, qa = pa.logDensity()
-		lfb, qb = pb.logDensity()
-	} else {
-		lp = logDiffCDF(k.link, a, b)
-		if !math.IsInf(lp, -1) && !math.IsNaN(lp) && (g != nil || h != nil) {
-			lfb, qb = k.link.logDensity(b)
-			lfa, qa = k.link.logDensity(a)
-		}
-	}
-	if math.IsInf(lp, -1) || math.IsNaN(lp) {
-		return lp, false
-	}
-	if g == nil && h == nil {
-		return lp, true
-	}
-	rb := math.Exp(lfb - lp)
-	ra := math.Exp(lfa - lp)
 	if g != nil {
-		g[c] = rb
-		g[c-1] = -ra
+		g[c] = m.rb
+		g[c-1] = -m.ra
 	}
 	if h != nil {
-		h[c*q+c] = qb*rb - rb*rb
-		h[(c-1)*q+c-1] = -qa*ra - ra*ra
-		h[c*q+c-1] = ra * rb
-		h[(c-1)*q+c] = ra * rb
+		h[c*q+c] = m.hbb()
+		h[(c-1)*q+c-1] = m.haa()
+		h[c*q+c-1] = m.ra * m.rb
+		h[(c-1)*q+c] = m.ra * m.rb
 	}
-	return lp, true
+	return m.lp, true
+}
+
+// middle is log P of a middle category of a cumulative model, P =
+// F(b) - F(a) with b > a the category's upper and lower boundaries, and
+// what its derivatives take: ra = f(a)/P, rb = f(b)/P (d log P/db = rb,
+// d log P/da = -ra) and qa, qb = f'/f at a and b.
+type middle struct{ lp, ra, rb, qa, qb float64 }
+
+// hbb is d2 log P / db2, haa d2 log P / da2; d2 log P / da db is ra rb.
+func (m middle) hbb() float64 { return m.qb*m.rb - m.rb*m.rb }
+func (m middle) haa() float64 { return -m.qa*m.ra - m.ra*m.ra }
+
+// between evaluates the middle category between boundaries a < b (with
+// what the derivatives take when derivs is set); ok is false when b <= a
+// or P is not positive.
+func (k *kernel) between(a, b float64, derivs bool) (m middle, ok bool) {
+	if !(b > a) {
+		return middle{lp: math.Inf(-1)}, false
+	}
+	if k.link == Logit {
+		// Two exponentials and one logarithm serve the probability and both
+		// densities (logitBetween), the log-space path below only far in
+		// the tails.
+		pa, pb := newLogitPoint(a), newLogitPoint(b)
+		m.qa, m.qb = pa.Fc-pa.F, pb.Fc-pb.F
+		if m.lp, m.ra, m.rb, ok = logitBetween(pa, pb); ok {
+			return m, true
+		}
+		m.lp = logitDiff(pa, pb)
+		if math.IsInf(m.lp, -1) || math.IsNaN(m.lp) {
+			return m, false
+		}
+		lfa, _ := pa.logDensity()
+		lfb, _ := pb.logDensity()
+		m.rb, m.ra = math.Exp(lfb-m.lp), math.Exp(lfa-m.lp)
+		return m, true
+	}
+	m.lp = logDiffCDF(k.link, a, b)
+	if math.IsInf(m.lp, -1) || math.IsNaN(m.lp) {
+		return m, false
+	}
+	if !derivs {
+		return m, true
+	}
+	var lfa, lfb float64
+	lfb, m.qb = k.link.logDensity(b)
+	lfa, m.qa = k.link.logDensity(a)
+	m.rb, m.ra = math.Exp(lfb-m.lp), math.Exp(lfa-m.lp)
+	return m, true
 }
 
 // logDiffCDF is log(F(b) - F(a)) for b > a, from whichever tail keeps the
@@ -180,46 +206,47 @@ func log1mexp(x float64) float64 {
 }
 
 func (k *kernel) stageForward(L []float64, c int, g, h []float64) (float64, bool) {
-	lp := 0.0
-	for m := 0; m < c; m++ {
-		t := k.link.upper(L[m])
-		lp += t.v
-		k.put(g, h, m, t)
-	}
-	if c < k.nEq {
-		t := k.link.lower(L[c])
-		lp += t.v
-		k.put(g, h, c, t)
-	}
-	return lp, !math.IsInf(lp, -1) && !math.IsNaN(lp)
+	return k.tails(L, c, 0, min(c+1, k.nEq), g, h)
 }
 
 func (k *kernel) stacked(L []float64, c int, g, h []float64) (float64, bool) {
-	lp := 0.0
-	for m := 0; m < k.nEq; m++ {
-		var t tail
-		if c <= m {
-			t = k.link.lower(L[m])
-		} else {
-			t = k.link.upper(L[m])
-		}
-		lp += t.v
-		k.put(g, h, m, t)
-	}
-	return lp, !math.IsInf(lp, -1) && !math.IsNaN(lp)
+	return k.tails(L, c, 0, k.nEq, g, h)
 }
 
 func (k *kernel) stageBackward(L []float64, c int, g, h []float64) (float64, bool) {
+	return k.tails(L, c, max(c-1, 0), k.nEq, g, h)
+}
+
+// tails is a kernel whose log-probability is a sum of log-tails of the
+// equations lo..hi-1: log(1 - F(L_m)) for m < c, log F(L_m) for m >= c
+// (stage forward: the equations up to c; backward: from c - 1; stacked:
+// all). Under the logit link the logarithms are shared: one exponential
+// per equation and one log1p per row (logitTails).
+func (k *kernel) tails(L []float64, c, lo, hi int, g, h []float64) (float64, bool) {
 	lp := 0.0
-	if c > 0 {
-		t := k.link.upper(L[c-1])
-		lp += t.v
-		k.put(g, h, c-1, t)
-	}
-	for m := c; m < k.nEq; m++ {
-		t := k.link.lower(L[m])
-		lp += t.v
-		k.put(g, h, m, t)
+	if k.link == Logit {
+		var s logitTails
+		for m := lo; m < hi; m++ {
+			p := newLogitPoint(L[m])
+			s.add(p, m < c)
+			if m < c {
+				k.put(g, h, m, tail{0, -p.F, -p.F * p.Fc})
+			} else {
+				k.put(g, h, m, tail{0, p.Fc, -p.F * p.Fc})
+			}
+		}
+		lp = s.sum()
+	} else {
+		for m := lo; m < hi; m++ {
+			var t tail
+			if m < c {
+				t = k.link.upper(L[m])
+			} else {
+				t = k.link.lower(L[m])
+			}
+			lp += t.v
+			k.put(g, h, m, t)
+		}
 	}
 	return lp, !math.IsInf(lp, -1) && !math.IsNaN(lp)
 }
@@ -228,13 +255,20 @@ func (k *kernel) stageBackward(L []float64, c int, g, h []float64) (float64, boo
 // log P(c) = s_c - logsumexp(s), s_j = sum_{m>=j} psi_m.
 func (k *kernel) adjacent(L []float64, c int, g, h []float64) (float64, bool) {
 	q := k.nEq
-	var psi, d1, d2 [64]float64
-	var ps, dps, d2ps []float64
-	if q <= len(psi) {
-		ps, dps, d2ps = psi[:q], d1[:q], d2[:q]
-	} else {
-		ps, dps, d2ps = make([]float64, q), make([]float64, q), make([]float64, q)
+	if k.link == Logit && q < 16 {
+		return adjacentLogit(L, c, g, h)
 	}
+	// psi, its two derivatives, s (q+1), C, U (q) and P (q+1): one buffer.
+	var buf [7*16 + 2]float64
+	var b []float64
+	if q <= 16 {
+		b = buf[:7*q+2]
+	} else {
+		b = make([]float64, 7*q+2)
+	}
+	ps, dps, d2ps, s := b[:q], b[q:2*q], b[2*q:3*q], b[3*q:4*q+1]
+	C, U, P := b[4*q+1:5*q+1], b[5*q+1:6*q+1], b[6*q+1:]
+	_ = P[q]
 	for m := 0; m < q; m++ {
 		if k.link == Logit {
 			ps[m], dps[m], d2ps[m] = L[m], 1, 0
@@ -245,13 +279,6 @@ func (k *kernel) adjacent(L []float64, c int, g, h []float64) (float64, bool) {
 		// probabilities are then exactly 0 on one side) so that sums of psi
 		// never meet Inf - Inf.
 		ps[m], dps[m], d2ps[m] = clampHuge(lo.v-up.v), clampHuge(lo.d1-up.d1), clampHuge(lo.d2-up.d2)
-	}
-	var sbuf [65]float64
-	var s []float64
-	if q+1 <= len(sbuf) {
-		s = sbuf[:q+1]
-	} else {
-		s = make([]float64, q+1)
 	}
 	s[q] = 0
 	top := q
@@ -272,9 +299,12 @@ func (k *kernel) adjacent(L []float64, c int, g, h []float64) (float64, bool) {
 		acc0 -= ps[j-1]
 		s[j] = acc0
 	}
+	// e^(s_j) (at most 1: s_top = 0), kept for the probabilities: one
+	// exponential per category.
 	sum := 0.0
-	for j := 0; j <= q; j++ {
-		sum += math.Exp(s[j])
+	for j := range P {
+		P[j] = math.Exp(s[j])
+		sum += P[j]
 	}
 	lse := math.Log(sum)
 	lp := s[c] - lse
@@ -284,24 +314,10 @@ func (k *kernel) adjacent(L []float64, c int, g, h []float64) (float64, bool) {
 	if g == nil && h == nil {
 		return lp, true
 	}
-	// C_m = P(y <= m), U_m = P(y > m).
-	var cbuf, ubuf [64]float64
-	var C, U []float64
-	if q <= len(cbuf) {
-		C, U = cbuf[:q], ubuf[:q]
-	} else {
-		C, U = make([]float64, q), make([]float64, q)
-	}
-	// P_j = exp(s_j - lse), one exponential per category.
-	var pbuf [65]float64
-	var P []float64
-	if q+1 <= len(pbuf) {
-		P = pbuf[:q+1]
-	} else {
-		P = make([]float64, q+1)
-	}
+	// P_j = e^(s_j) / sum_k e^(s_k): the sum is at least 1. C_m = P(y <= m),
+	// U_m = P(y > m).
 	for j := range P {
-		P[j] = math.Exp(s[j] - lse)
+		P[j] /= sum
 	}
 	acc := 0.0
 	for m := 0; m < q; m++ {
@@ -331,6 +347,78 @@ func (k *kernel) adjacent(L []float64, c int, g, h []float64) (float64, bool) {
 				if l != m {
 					h[l*q+m] += v
 				}
+			}
+		}
+	}
+	return lp, true
+}
+
+// adjacentLogit is adjacent under the logit link, psi_m = L_m (first
+// derivative 1, second 0), for fewer than 16 equations: the same sums in
+// the same order, with two buffers on the stack (Go clears them on every
+// call, so they are kept small): s_j then C_m in one, e^(s_j), P_j, then
+// U_m (at m + 1) in the other.
+func adjacentLogit(L []float64, c int, g, h []float64) (float64, bool) {
+	q := len(L)
+	var sbuf, pbuf [16]float64
+	s, P := sbuf[:q+1], pbuf[:q+1]
+	s[q] = 0
+	top := q
+	for j := q - 1; j >= 0; j-- {
+		s[j] = s[j+1] + L[j]
+		if s[j] > s[top] {
+			top = j
+		}
+	}
+	s[top] = 0
+	for j := top - 1; j >= 0; j-- {
+		s[j] = s[j+1] + L[j]
+	}
+	acc0 := 0.0
+	for j := top + 1; j <= q; j++ {
+		acc0 -= L[j-1]
+		s[j] = acc0
+	}
+	sum := 0.0
+	for j := range P {
+		P[j] = math.Exp(s[j])
+		sum += P[j]
+	}
+	lp := s[c] - math.Log(sum)
+	if math.IsNaN(lp) || math.IsInf(lp, 0) {
+		return math.Inf(-1), false
+	}
+	if g == nil && h == nil {
+		return lp, true
+	}
+	for j := range P {
+		P[j] /= sum
+	}
+	C := s[:q]
+	acc := 0.0
+	for m := 0; m < q; m++ {
+		acc += P[m]
+		C[m] = acc
+	}
+	acc = 0
+	for m := q - 1; m >= 0; m-- {
+		acc += P[m+1]
+		P[m+1] = acc // U_m
+	}
+	U := P[1:]
+	for m := 0; m < q; m++ {
+		if g != nil {
+			if m >= c {
+				g[m] = U[m] // 1 - C_m
+			} else {
+				g[m] = -C[m]
+			}
+		}
+		if h != nil {
+			for l := m; l < q; l++ {
+				v := -(C[m] * U[l])
+				h[m*q+l] = v
+				h[l*q+m] = v
 			}
 		}
 	}

@@ -86,6 +86,7 @@ type problem struct {
 	freeOf   []int    // predictor -> its per-equation column (or -1)
 	parOf    []int    // predictor -> its parallel column (or -1)
 	pairs    [][2]int
+	pairAt   []int // q x q: the index in pairs of (m, l), m <= l (-1: not needed)
 	// parInd is the number of indicator columns (design.group) that end
 	// the parallel columns and are summed by group rather than held in the
 	// block's columns (0: none, or they are held like any column).
@@ -117,9 +118,12 @@ func newProblem(d *design, m Model, ly *layout, workers int) *problem {
 	if d.groups > 0 && !slices.ContainsFunc(m.Effects[d.width():], func(e Effect) bool { return e != Parallel }) {
 		p.parInd = d.groups
 	}
+	p.pairAt = make([]int, q*q)
 	for a := 0; a < q; a++ {
-		for b := a; b < q; b++ {
-			if p.ker.pairNeeded(a, b) {
+		for b := 0; b < q; b++ {
+			p.pairAt[a*q+b] = -1
+			if b >= a && p.ker.pairNeeded(a, b) {
+				p.pairAt[a*q+b] = len(p.pairs)
 				p.pairs = append(p.pairs, [2]int{a, b})
 			}
 		}
@@ -300,17 +304,22 @@ func forEach(count, workers int, f func(i int)) {
 }
 
 // scratch is per-worker memory for one block. The block's columns, linear
-// predictors, first derivatives and weight vectors are column-major (one
-// contiguous run of rows per column); hb holds each row's (J-1)x(J-1)
-// second derivatives.
+// predictors, first and second derivatives and weight vectors are
+// column-major (one contiguous run of rows per column), so that every
+// phase reads and writes contiguous memory.
 type scratch struct {
-	uf, xp  []float64 // Kf x rows, Kp x rows
-	eta, gs []float64 // q x rows: x'b + offset per equation; weighted dlogP/dL
-	hb      []float64 // rows x q x q
-	wt      []float64 // rows: the weights of one cross-product
-	rl, ru  []float64 // q x rows: sum_m H_ml per equation l; Kf q x rows: those times the per-equation columns
-	L, g, h []float64
-	p       []float64
+	uf, xp []float64 // Kf x rows, Kp x rows
+	// eta holds x'b + offset per equation, q x rows; when no equation has
+	// slopes of its own (parallel effects) the equations share one column,
+	// etaStride 0 (else rows): equation m of row i is eta[m*etaStride+i].
+	eta       []float64
+	etaStride int
+	gs        []float64 // q x rows: weighted dlogP/dL_m
+	hp        []float64 // pairs x rows: weighted d2logP/dL_m dL_l of each pair the comparison needs
+	wt        []float64 // rows: the weights of one cross-product
+	rl, ru    []float64 // q x rows: sum_m H_ml per equation l; Kf q x rows: those times the per-equation columns
+	L, g, h   []float64
+	p         []float64
 }
 
 func (p *problem) newScratch() *scratch {
@@ -319,13 +328,15 @@ func (p *problem) newScratch() *scratch {
 	s := &scratch{
 		uf: make([]float64, rows*kf), xp: make([]float64, rows*kp),
 		eta: make([]float64, rows*q), gs: make([]float64, rows*q),
-		hb: make([]float64, rows*q*q), wt: make([]float64, rows),
+		hp: make([]float64, rows*len(p.pairs)), wt: make([]float64, rows),
 		L: make([]float64, q), g: make([]float64, q), h: make([]float64, q*q),
 		p: make([]float64, q+1),
 	}
 	if kp > 0 {
 		s.rl = make([]float64, rows*q)
-		s.ru = make([]float64, rows*q*kf)
+		if kf > 1 {
+			s.ru = make([]float64, rows*q*kf)
+		}
 	}
 	return s
 }
@@ -367,25 +378,13 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 }
 
 // blockColumns fills s.uf with the per-equation columns (Kf x rows) and
-// s.xp with the parallel columns (Kp x rows) of the block, column by column.
+// s.xp with the parallel columns (Kp x rows) of the block, column by
+// column. The parallel columns are left to blockLinear when it reads them
+// from the rows (parFromRows).
 func (p *problem) blockColumns(c *coefs, lo, rows int, s *scratch) {
 	d := p.d
 	w := d.width()
 	x := d.x[lo*w : (lo+rows)*w]
-	column := func(dst []float64, k int) {
-		if k >= w {
-			for i, g := range d.group[lo : lo+rows] {
-				dst[i] = 0
-				if g == k-w+1 {
-					dst[i] = 1
-				}
-			}
-			return
-		}
-		for i := range dst {
-			dst[i] = x[i*w+k]
-		}
-	}
 	for j, col := range p.freeCols {
 		dst := s.uf[j*rows : (j+1)*rows]
 		switch col.kind {
@@ -394,7 +393,7 @@ func (p *problem) blockColumns(c *coefs, lo, rows int, s *scratch) {
 				dst[i] = 1
 			}
 		case predictorColumn:
-			column(dst, col.index)
+			p.column(dst, x, lo, col.index)
 		default:
 			buf := make([]float64, d.K)
 			for i := range dst {
@@ -402,20 +401,84 @@ func (p *problem) blockColumns(c *coefs, lo, rows int, s *scratch) {
 			}
 		}
 	}
+	if p.parFromRows() {
+		return
+	}
 	for j, k := range p.parCols[:len(p.parCols)-p.parInd] {
-		column(s.xp[j*rows:(j+1)*rows], k)
+		p.column(s.xp[j*rows:(j+1)*rows], x, lo, k)
 	}
 }
 
-// blockLinear fills s.eta (q x rows) with Uf Bf + (Xp bp + offset) 1', each
-// sum in the order of its terms.
+// column fills dst with column k of the block's rows x (from row lo): a
+// predictor, or a group's indicator.
+func (p *problem) column(dst, x []float64, lo, k int) {
+	d := p.d
+	w := d.width()
+	if k >= w {
+		for i, g := range d.group[lo : lo+len(dst)] {
+			dst[i] = 0
+			if g == k-w+1 {
+				dst[i] = 1
+			}
+		}
+		return
+	}
+	for i := range dst {
+		dst[i] = x[i*w+k]
+	}
+}
+
+// parFromRows reports whether the parallel columns held in the blocks are
+// all predictors of x (no indicator among them): then blockLinear copies
+// them into the block row by row and forms x'b as it goes.
+func (p *problem) parFromRows() bool {
+	w := p.d.width()
+	for _, k := range p.parCols[:len(p.parCols)-p.parInd] {
+		if k >= w {
+			return false
+		}
+	}
+	return true
+}
+
+// blockLinear fills s.eta with Uf Bf + (Xp bp + offset) 1', each sum in the
+// order of its terms; when no equation has slopes of its own, the
+// equations share one column (s.etaStride 0).
 func (p *problem) blockLinear(c *coefs, lo, rows int, s *scratch) {
 	q := p.q
+	// The shared sum goes straight to eta when it is all there is.
+	shared := !slices.ContainsFunc(c.bf, func(b float64) bool { return b != 0 })
 	e := s.wt[:rows]
-	clear(e)
+	if shared {
+		e = s.eta[:rows]
+	}
 	kp0 := len(c.bp) - p.parInd
-	for j, b := range c.bp[:kp0] {
-		axpy(e, b, s.xp[j*rows:(j+1)*rows])
+	if p.parFromRows() {
+		// Eight rows at a time (one cache line of each column): their
+		// parallel values go to their columns and into x'b, summed in the
+		// order of the columns as below. (Row by row, the writes to columns
+		// 32 KB apart evict one another from the cache.)
+		d := p.d
+		w := d.width()
+		x := d.x[lo*w : (lo+rows)*w]
+		cols, bp := p.parCols[:kp0], c.bp[:kp0]
+		for i0 := 0; i0 < rows; i0 += 8 {
+			i1 := min(i0+8, rows)
+			ei := e[i0:i1]
+			clear(ei)
+			for j, k := range cols {
+				dst := s.xp[j*rows+i0 : j*rows+i1]
+				for i := range dst {
+					dst[i] = x[(i0+i)*w+k]
+				}
+				axpy(ei, bp[j], dst)
+			}
+		}
+	} else {
+		clear(e)
+		for j, b := range c.bp[:kp0] {
+			axpy(e, b, s.xp[j*rows:(j+1)*rows])
+		}
 	}
 	if p.parInd > 0 {
 		// An indicator adds its slope in the rows of its group (and 0, which
@@ -429,6 +492,11 @@ func (p *problem) blockLinear(c *coefs, lo, rows int, s *scratch) {
 	if p.d.off != nil {
 		addTo(e, p.d.off[lo:lo+rows])
 	}
+	if shared {
+		s.etaStride = 0
+		return
+	}
+	s.etaStride = rows
 	for m := 0; m < q; m++ {
 		em := s.eta[m*rows : (m+1)*rows]
 		clear(em)
@@ -451,37 +519,45 @@ func axpy(y []float64, b float64, x []float64) {
 
 // blockKernels evaluates the row kernel of every row: it adds the weighted
 // log-probabilities to a.ll, and keeps in s.gs the weighted first
-// derivatives in L (q x rows, order >= 1) and in s.hb the weighted second
-// derivatives (rows x q x q, order >= 2; expected ones when asked). It
-// reports false when a row's observed category has a non-positive
-// probability.
+// derivatives in L (q x rows, order >= 1) and in s.hp the weighted second
+// derivatives of the pairs of equations the comparison needs (pairs x
+// rows, order >= 2; expected ones when asked). It reports false when a
+// row's observed category has a non-positive probability.
 func (p *problem) blockKernels(c *coefs, lo, rows, order int, expected bool, a *acc, s *scratch) bool {
 	d, q := p.d, p.q
+	if p.ker.cmp == Cumulative && !expected {
+		return p.cumulativeKernels(c, lo, rows, order, a, s)
+	}
 	var g, h []float64
 	if order >= 1 {
 		g = s.g
 	}
-	if order >= 2 && !expected {
+	if order >= 2 {
 		h = s.h
 	}
-	gs := s.gs
-	if p.ker.cmp == Cumulative && q == 1 && !expected {
-		return p.binaryKernels(c, lo, rows, order, a, s)
-	}
+	gs, hp, es := s.gs, s.hp, s.etaStride
 	for i := 0; i < rows; i++ {
 		r := lo + i
 		w := d.weight(r)
 		for m := 0; m < q; m++ {
-			s.L[m] = c.tau[m] - s.eta[m*rows+i]
+			s.L[m] = c.tau[m] - s.eta[m*es+i]
 		}
 		if w == 0 {
 			for m := 0; m < q; m++ {
 				gs[m*rows+i] = 0
 			}
-			clear(s.hb[i*q*q : (i+1)*q*q])
+			if order >= 2 {
+				for pi := range p.pairs {
+					hp[pi*rows+i] = 0
+				}
+			}
 			continue
 		}
-		lp, ok := p.ker.eval(s.L, d.y[r], g, h)
+		var hk []float64
+		if !expected {
+			hk = h
+		}
+		lp, ok := p.ker.eval(s.L, d.y[r], g, hk)
 		if !ok {
 			return false
 		}
@@ -493,61 +569,86 @@ func (p *problem) blockKernels(c *coefs, lo, rows, order int, expected bool, a *
 			}
 		}
 		if order >= 2 {
-			hb := s.hb[i*q*q : (i+1)*q*q]
+			ww := w
 			if expected {
-				p.ker.fisher(s.L, hb, s.g, s.p)
-				for t := range hb {
-					hb[t] = -w * hb[t]
-				}
-			} else {
-				for t := range hb {
-					hb[t] = w * h[t]
-				}
+				p.ker.fisher(s.L, h, s.g, s.p)
+				ww = -w
+			}
+			for pi, pr := range p.pairs {
+				hp[pi*rows+i] = ww * h[pr[0]*q+pr[1]]
 			}
 		}
 	}
 	return true
 }
 
-// binaryKernels is blockKernels for a cumulative model of two categories
-// (one equation) with observed derivatives: the same values, computed
-// straight from the link's tails (log F for the lower category,
-// log(1 - F) for the upper) without the general kernel's dispatch.
-func (p *problem) binaryKernels(c *coefs, lo, rows, order int, a *acc, s *scratch) bool {
-	d, link, tau := p.d, p.ker.link, c.tau[0]
+// cumulativeKernels is blockKernels for a cumulative model with observed
+// derivatives: the same values as the general kernel, written straight
+// into the block's columns. A row touches one or two equations: the
+// link's tail for the first and last categories (log F for the lowest,
+// log(1 - F) for the highest), kernel.between for the others.
+func (p *problem) cumulativeKernels(c *coefs, lo, rows, order int, a *acc, s *scratch) bool {
+	d, k, q, es := p.d, &p.ker, p.q, s.etaStride
 	y := d.y[lo : lo+rows]
-	eta, gs, hb := s.eta[:rows], s.gs[:rows], s.hb[:rows]
+	tau, eta := c.tau, s.eta
+	gs, hp := s.gs[:q*rows], s.hp[:len(p.pairs)*rows]
+	if order >= 1 {
+		clear(gs)
+	}
+	if order >= 2 {
+		clear(hp)
+	}
 	var w []float64
 	if d.w != nil {
 		w = d.w[lo : lo+rows]
 	}
+	// hcol is the column of the second derivatives in L_m, L_l (m <= l).
+	hcol := func(m, l int) []float64 { pi := p.pairAt[m*q+l]; return hp[pi*rows : (pi+1)*rows] }
 	for i, yi := range y {
 		wi := 1.0
 		if w != nil {
 			wi = w[i]
 		}
 		if wi == 0 {
-			gs[i], hb[i] = 0, 0
 			continue
 		}
-		L := tau - eta[i]
-		var t tail
-		if yi == 0 {
-			t = link.lower(L)
-		} else {
-			t = link.upper(L)
+		if yi == 0 || yi == q {
+			var t tail
+			m := 0
+			if yi == 0 {
+				t = k.link.lower(tau[0] - eta[i])
+			} else {
+				m = q - 1
+				t = k.link.upper(tau[m] - eta[m*es+i])
+			}
+			if math.IsInf(t.v, -1) || math.IsNaN(t.v) {
+				return false
+			}
+			a.ll += wi * t.v
+			a.minLP = math.Min(a.minLP, t.v)
+			// As the general kernel forms them: 0 plus the tail's derivative.
+			if order >= 1 {
+				gs[m*rows+i] = wi * (0 + t.d1)
+			}
+			if order >= 2 {
+				hcol(m, m)[i] = wi * (0 + t.d2)
+			}
+			continue
 		}
-		if math.IsInf(t.v, -1) || math.IsNaN(t.v) {
+		md, ok := k.between(tau[yi-1]-eta[(yi-1)*es+i], tau[yi]-eta[yi*es+i], order >= 1)
+		if !ok {
 			return false
 		}
-		a.ll += wi * t.v
-		a.minLP = math.Min(a.minLP, t.v)
-		// As the general kernel forms them: 0 plus the tail's derivative.
+		a.ll += wi * md.lp
+		a.minLP = math.Min(a.minLP, md.lp)
 		if order >= 1 {
-			gs[i] = wi * (0 + t.d1)
+			gs[yi*rows+i] = wi * md.rb
+			gs[(yi-1)*rows+i] = wi * -md.ra
 		}
 		if order >= 2 {
-			hb[i] = wi * (0 + t.d2)
+			hcol(yi, yi)[i] = wi * md.hbb()
+			hcol(yi-1, yi-1)[i] = wi * md.haa()
+			hcol(yi-1, yi)[i] = wi * (md.ra * md.rb)
 		}
 	}
 	return true
@@ -586,49 +687,52 @@ func (p *problem) blockScore(lo, rows int, a *acc, s *scratch) {
 // parallel columns enter one weighted cross-product, whatever the number
 // of equations.
 func (p *problem) blockInformation(lo, rows int, a *acc, s *scratch) {
-	q, qq := p.q, p.q*p.q
+	q := p.q
 	kf, kp := len(p.freeCols), len(p.parCols)
-	wt := s.wt[:rows]
-	for pi, pr := range p.pairs {
-		ml := pr[0]*q + pr[1]
-		for i := range wt {
-			wt[i] = s.hb[i*qq+ml]
-		}
-		symCross(a.S[pi], kf, s.uf, kf, rows, wt)
+	hpair := func(pi int) []float64 { return s.hp[pi*rows : (pi+1)*rows] }
+	for pi := range p.pairs {
+		symCross(a.S[pi], kf, s.uf, kf, rows, hpair(pi))
 	}
 	if kp == 0 {
 		return
 	}
-	for i := range wt {
-		hb := s.hb[i*qq : (i+1)*qq]
-		for l := 0; l < q; l++ {
-			r := 0.0
-			for m := 0; m < q; m++ {
-				r += hb[m*q+l]
-			}
-			s.rl[l*rows+i] = r
+	// sum_m H_ml for every l, from the pairs (H is symmetric), in the
+	// order of m; then their sum over l, the weights of the parallel block.
+	rl := s.rl[:q*rows]
+	clear(rl)
+	for pi, pr := range p.pairs {
+		h := hpair(pi)
+		addTo(rl[pr[0]*rows:(pr[0]+1)*rows], h)
+		if pr[1] != pr[0] {
+			addTo(rl[pr[1]*rows:(pr[1]+1)*rows], h)
 		}
-		t := 0.0
-		for _, v := range hb {
-			t += v
-		}
-		wt[i] = t
 	}
-	for l := 0; l < q; l++ {
-		rl := s.rl[l*rows : (l+1)*rows]
-		for j := 0; j < kf; j++ {
-			ru := s.ru[(l*kf+j)*rows : (l*kf+j+1)*rows]
-			u := s.uf[j*rows : (j+1)*rows]
-			for i := range ru {
-				ru[i] = rl[i] * u[i]
+	wt := s.wt[:rows]
+	copy(wt, rl[:rows])
+	for l := 1; l < q; l++ {
+		addTo(wt, rl[l*rows:(l+1)*rows])
+	}
+	// The per-equation columns times sum_m H_ml; the constant column alone
+	// (parallel effects) is rl itself.
+	ru := rl
+	if kf > 1 {
+		ru = s.ru
+		for l := 0; l < q; l++ {
+			rll := rl[l*rows : (l+1)*rows]
+			for j := 0; j < kf; j++ {
+				dst := ru[(l*kf+j)*rows : (l*kf+j+1)*rows]
+				u := s.uf[j*rows : (j+1)*rows]
+				for i := range dst {
+					dst[i] = rll[i] * u[i]
+				}
 			}
 		}
 	}
 	kp0 := kp - p.parInd
-	fullCross(a.R, q*kf, s.xp, kp0, s.ru, q*kf, rows, nil)
+	fullCross(a.R, q*kf, s.xp, kp0, ru, q*kf, rows, nil)
 	symCross(a.T, kp, s.xp, kp0, rows, wt)
 	if p.parInd > 0 {
-		p.indicatorInformation(lo, rows, kp0, a, s)
+		p.indicatorInformation(lo, rows, kp0, ru, a, s)
 	}
 }
 
@@ -638,7 +742,7 @@ func (p *problem) blockInformation(lo, rows int, a *acc, s *scratch) {
 // indicators held as columns, in the same order (an indicator is 1 in its
 // group, where its product is the other factor exactly, and 0 elsewhere,
 // where it adds 0), so the sums are the same to the last bit.
-func (p *problem) indicatorInformation(lo, rows, kp0 int, a *acc, s *scratch) {
+func (p *problem) indicatorInformation(lo, rows, kp0 int, ru []float64, a *acc, s *scratch) {
 	q, kf, kp := p.q, len(p.freeCols), len(p.parCols)
 	wt := s.wt[:rows]
 	for i, g := range p.d.group[lo : lo+rows] {
@@ -648,7 +752,7 @@ func (p *problem) indicatorInformation(lo, rows, kp0 int, a *acc, s *scratch) {
 		j := kp0 + g - 1
 		r := a.R[j*q*kf : (j+1)*q*kf]
 		for c := range r {
-			r[c] += s.ru[c*rows+i]
+			r[c] += ru[c*rows+i]
 		}
 		t := a.T[j*kp : j*kp+j+1]
 		for b := 0; b < kp0; b++ {

@@ -44,8 +44,8 @@ func (l Link) lower(z float64) tail {
 	switch l {
 	case Logit:
 		// log F = -log(1+e^-z); d = 1-F; d2 = -F(1-F)
-		v, F, Fc := logitTail(z)
-		return tail{v, Fc, -F * Fc}
+		p := newLogitPoint(z)
+		return tail{p.logF(), p.Fc, -p.F * p.Fc}
 	case Probit:
 		v := logPhi(z)
 		lam := millsInv(z) // phi(z)/Phi(z)
@@ -85,8 +85,8 @@ func (l Link) lower(z float64) tail {
 func (l Link) upper(z float64) tail {
 	switch l {
 	case Logit:
-		v, Fc, F := logitTail(-z)
-		return tail{v, -F, -F * Fc}
+		p := newLogitPoint(z)
+		return tail{p.logFc(), -p.F, -p.F * p.Fc}
 	case Probit, Cauchy:
 		t := l.lower(-z)
 		return tail{t.v, -t.d1, t.d2}
@@ -104,8 +104,7 @@ func (l Link) upper(z float64) tail {
 func (l Link) cdf(z float64) float64 {
 	switch l {
 	case Logit:
-		F, _ := logistic(z)
-		return F
+		return newLogitPoint(z).F
 	case Probit:
 		return 0.5 * math.Erfc(-z/math.Sqrt2)
 	case Cloglog:
@@ -142,8 +141,7 @@ func (l Link) Quantile(p float64) float64 {
 func (l Link) logDensity(z float64) (float64, float64) {
 	switch l {
 	case Logit:
-		F, Fc := logistic(z)
-		return -softplus(-z) - softplus(z), Fc - F
+		return newLogitPoint(z).logDensity()
 	case Probit:
 		return -0.5*z*z - 0.5*math.Log(2*math.Pi), -z
 	case Cloglog:
@@ -158,67 +156,100 @@ func (l Link) logDensity(z float64) (float64, float64) {
 	panic("fit: unknown link")
 }
 
-// logitTail returns log F(z), F(z) and 1-F(z) for the logistic F with one
-// exponential and one logarithm.
-func logitTail(z float64) (float64, float64, float64) {
-	if z >= 0 {
-		e := math.Exp(-z)
-		return -math.Log1p(e), 1 / (1 + e), e / (1 + e)
-	}
-	e := math.Exp(z)
-	return z - math.Log1p(e), e / (1 + e), 1 / (1 + e)
-}
-
-// logitPoint holds the logistic quantities of one z from one exponential
-// and one logarithm: e = exp(-|z|), l = log1p(e). Its methods return, bit
-// for bit, what Link.lower, Link.upper, logistic and Link.logDensity
-// return for the logit link at z.
-type logitPoint struct{ z, e, l float64 }
+// logitPoint holds the logistic quantities of one z from one exponential,
+// e = exp(-|z|), and one division: F(z) and 1 - F(z), each without
+// cancellation. Every logit quantity of the link (Link's lower, upper, cdf
+// and logDensity) and of the row kernels is formed from it; the logarithms
+// log F = -log1p(e^-z) and log(1 - F) = -log1p(e^z) take one log1p more
+// (logitTails shares one among several points).
+type logitPoint struct{ z, e, F, Fc float64 }
 
 func newLogitPoint(z float64) logitPoint {
 	e := math.Exp(-math.Abs(z))
-	return logitPoint{z, e, math.Log1p(e)}
+	r := 1 / (1 + e)
+	if z >= 0 {
+		return logitPoint{z, e, r, e * r}
+	}
+	return logitPoint{z, e, e * r, r}
 }
 
-// logF is log F(z).
+// logF is log F(z) = -log(1 + e^-z).
 func (p logitPoint) logF() float64 {
 	if p.z >= 0 {
-		return -p.l
+		return -math.Log1p(p.e)
 	}
-	return p.z - p.l
+	return p.z - math.Log1p(p.e)
 }
 
-// logFc is log(1 - F(z)).
+// logFc is log(1 - F(z)) = -log(1 + e^z).
 func (p logitPoint) logFc() float64 {
-	if -p.z >= 0 {
-		return -p.l
+	if p.z <= 0 {
+		return -math.Log1p(p.e)
 	}
-	return -p.z - p.l
+	return -p.z - math.Log1p(p.e)
 }
 
-// probs returns F(z) and 1 - F(z).
-func (p logitPoint) probs() (float64, float64) {
-	if p.z >= 0 {
-		return 1 / (1 + p.e), p.e / (1 + p.e)
-	}
-	return p.e / (1 + p.e), 1 / (1 + p.e)
-}
-
-// logDensity returns log f(z) and f'(z)/f(z).
+// logDensity returns log f(z) = log F(z) + log(1 - F(z)) = -|z| -
+// 2 log(1 + e^-|z|) and f'(z)/f(z) = 1 - 2 F(z).
 func (p logitPoint) logDensity() (float64, float64) {
-	F, Fc := p.probs()
-	if p.z > 0 {
-		return -p.l - (p.z + p.l), Fc - F
+	return -math.Abs(p.z) - 2*math.Log1p(p.e), p.Fc - p.F
+}
+
+// logitTails sums the log-tails of several logit points, log F(z) for
+// some and log(1 - F(z)) for others, with one log1p for all: each is
+// -max(-z, 0) or -max(z, 0), minus log1p(e^-|z|), and the sum of the
+// log1p terms is log1p(t) with 1 + t the product of the (1 + e^-|z|),
+// t formed from positive terms only (t + e + t e), so without
+// cancellation.
+type logitTails struct{ shift, t float64 }
+
+// add adds log(1 - F(z)) (upper) or log F(z) of point p.
+func (s *logitTails) add(p logitPoint, upper bool) {
+	if upper {
+		s.shift += max(p.z, 0)
+	} else {
+		s.shift += max(-p.z, 0)
 	}
-	if p.z == 0 {
-		return -p.l - p.l, Fc - F
+	s.t += p.e + s.t*p.e
+}
+
+// sum is the sum of the log-tails added.
+func (s *logitTails) sum() float64 { return -s.shift - math.Log1p(s.t) }
+
+// logitBetween returns, for a < b under the logit link, log P with
+// P = F(b) - F(a), and f(a)/P and f(b)/P (f = F'), from the two points'
+// exponentials, one logarithm and no further exponential but for b - a
+// below 1/2: P = F(b) (1 - F(a)) (1 - e^(a-b)), each factor without
+// cancellation, f(a)/P = F(a) / (F(b) (1 - e^(a-b))) and
+// f(b)/P = (1 - F(b)) / ((1 - F(a)) (1 - e^(a-b))). When P is near the
+// smallest normal number (one point far in a tail), the log-space path
+// takes over (ok false: the caller uses logitDiff and the densities).
+func logitBetween(pa, pb logitPoint) (lp, ra, rb float64, ok bool) {
+	var D float64 // 1 - e^(a-b)
+	if d := pb.z - pa.z; d < 0.5 {
+		D = -math.Expm1(-d)
+	} else {
+		var E float64
+		switch {
+		case pa.z >= 0: // e = e^-a, e^-b
+			E = pb.e / pa.e
+		case pb.z < 0: // e = e^a, e^b
+			E = pa.e / pb.e
+		default: // e^a, e^-b
+			E = pa.e * pb.e
+		}
+		D = 1 - E
 	}
-	return -(-p.z + p.l) - p.l, Fc - F
+	P := pb.F * pa.Fc * D
+	if !(P >= 0x1p-1000) {
+		return 0, 0, 0, false
+	}
+	return math.Log(P), pa.F / (pb.F * D), pb.Fc / (pa.Fc * D), true
 }
 
 // logitDiff is log(F(b) - F(a)) for b > a under the logit link, from
-// whichever tail keeps the digits: logDiffCDF from the two points' shared
-// exponentials.
+// whichever tail keeps the digits, in log space: logDiffCDF from the two
+// points (the path of logitBetween's far tails).
 func logitDiff(pa, pb logitPoint) float64 {
 	mid := 0.5 * (pa.z + pb.z)
 	if mid <= 0 || (mid < 1e-15 && Logit.cdf(mid) <= 0.5) { // F(mid) <= 1/2
@@ -231,20 +262,8 @@ func logitDiff(pa, pb logitPoint) float64 {
 
 // logistic returns F(z) and 1-F(z) without cancellation.
 func logistic(z float64) (float64, float64) {
-	if z >= 0 {
-		e := math.Exp(-z)
-		return 1 / (1 + e), e / (1 + e)
-	}
-	e := math.Exp(z)
-	return e / (1 + e), 1 / (1 + e)
-}
-
-// softplus is log(1+e^x) without overflow.
-func softplus(x float64) float64 {
-	if x > 0 {
-		return x + math.Log1p(math.Exp(-x))
-	}
-	return math.Log1p(math.Exp(x))
+	p := newLogitPoint(z)
+	return p.F, p.Fc
 }
 
 func cauchyCDF(z float64) float64 {

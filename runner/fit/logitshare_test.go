@@ -5,42 +5,153 @@ import (
 	"testing"
 )
 
-// TestLogitSharedExponentials checks that the logit quantities formed from
-// one exponential and one logarithm per point equal, bit for bit, those of
-// the link's general functions, over a grid reaching far into both tails
-// and the values next to 0.
-func TestLogitSharedExponentials(t *testing.T) {
+// logitGrid is a grid of z reaching far into both tails, with the values
+// next to 0.
+func logitGrid() []float64 {
 	var zs []float64
-	for _, z := range []float64{0, math.Copysign(0, -1), 1e-300, 1e-17, 1e-16, 5e-16, 1e-15, 2e-15, 1e-8, 0.3, 1, 2.5, 17, 36, 37, 40, 300, 709, 745, 800} {
+	for _, z := range []float64{0, math.Copysign(0, -1), 1e-300, 1e-17, 1e-16, 5e-16, 1e-15, 2e-15, 1e-8, 0.3, 1, 2.5, 17, 36, 37, 40, 300, 690, 700, 709, 745, 800} {
 		zs = append(zs, z, -z)
 	}
 	for i := -200; i <= 200; i++ {
 		zs = append(zs, float64(i)*0.173)
 	}
-	same := func(what string, z, got, want float64) {
-		if math.Float64bits(got) != math.Float64bits(want) && !(math.IsNaN(got) && math.IsNaN(want)) {
-			t.Fatalf("%s(%g) = %v, general path %v", what, z, got, want)
+	return zs
+}
+
+// logitNear reports whether got is within tol of want relative to |want|, or
+// absolutely when |want| < 1 (values are logarithms or probabilities).
+func logitNear(got, want, tol float64) bool {
+	if math.IsInf(want, 0) || math.IsNaN(want) {
+		return got == want || (math.IsNaN(got) && math.IsNaN(want))
+	}
+	return math.Abs(got-want) <= tol*math.Max(1, math.Abs(want))
+}
+
+// TestLogitPointAccuracy checks the logit quantities formed from one
+// exponential per point (newLogitPoint) against the textbook
+// formulas through the standard library's log1p, which keep every digit
+// (log F = -log1p(e^-z) for z >= 0, z - log1p(e^z) below; the density
+// f = F (1 - F)), to a few units in the last place.
+func TestLogitPointAccuracy(t *testing.T) {
+	const tol = 8 * 0x1p-52
+	softplus := func(x float64) float64 { // log(1 + e^x)
+		if x > 0 {
+			return x + math.Log1p(math.Exp(-x))
+		}
+		return math.Log1p(math.Exp(x))
+	}
+	for _, z := range logitGrid() {
+		p := newLogitPoint(z)
+		F, Fc := 1/(1+math.Exp(-z)), math.Exp(-z)/(1+math.Exp(-z))
+		if z < 0 {
+			F, Fc = math.Exp(z)/(1+math.Exp(z)), 1/(1+math.Exp(z))
+		}
+		checks := []struct {
+			what      string
+			got, want float64
+		}{
+			{"log F", p.logF(), -softplus(-z)},
+			{"log(1-F)", p.logFc(), -softplus(z)},
+			{"F", p.F, F},
+			{"1-F", p.Fc, Fc},
+		}
+		lf, r := p.logDensity()
+		checks = append(checks,
+			struct {
+				what      string
+				got, want float64
+			}{"log f", lf, -softplus(-z) - softplus(z)},
+			struct {
+				what      string
+				got, want float64
+			}{"f'/f", r, Fc - F})
+		for _, c := range checks {
+			if c.what == "F" || c.what == "1-F" {
+				if math.Abs(c.got-c.want) > tol*c.want {
+					t.Fatalf("%s(%g) = %v, want %v", c.what, z, c.got, c.want)
+				}
+				continue
+			}
+			if !logitNear(c.got, c.want, tol) {
+				t.Fatalf("%s(%g) = %v, want %v", c.what, z, c.got, c.want)
+			}
 		}
 	}
-	for _, z := range zs {
-		p := newLogitPoint(z)
-		same("logF", z, p.logF(), Logit.lower(z).v)
-		same("logFc", z, p.logFc(), Logit.upper(z).v)
-		F, Fc := p.probs()
-		wF, wFc := logistic(z)
-		same("F", z, F, wF)
-		same("Fc", z, Fc, wFc)
-		lf, r := p.logDensity()
-		wlf, wr := Logit.logDensity(z)
-		same("log f", z, lf, wlf)
-		same("f'/f", z, r, wr)
-	}
+}
+
+// TestLogitBetween checks the probability of a middle category from the
+// two points' exponentials (logitBetween) against the log-space path
+// (logitDiff, from whichever tail keeps the digits) and its derivatives
+// f(a)/P, f(b)/P against exp(log f - log P), over pairs of the grid, and
+// that the far tails are left to the log-space path.
+func TestLogitBetween(t *testing.T) {
+	zs := logitGrid()
+	fast := 0
 	for _, a := range zs {
 		for _, b := range zs {
 			if !(b > a) {
 				continue
 			}
-			same("logDiff", a, logitDiff(newLogitPoint(a), newLogitPoint(b)), logDiffCDF(Logit, a, b))
+			pa, pb := newLogitPoint(a), newLogitPoint(b)
+			lp, ra, rb, ok := logitBetween(pa, pb)
+			want := logitDiff(pa, pb)
+			if !ok {
+				if want > -600 {
+					t.Fatalf("logitBetween(%g, %g) declined, log P = %v", a, b, want)
+				}
+				continue
+			}
+			fast++
+			// The log-space path loses digits of b - a itself when the two
+			// points are close (both are exact to rounding of b - a); closer
+			// than 1e-8, P is f((a+b)/2) (b - a) to 1e-15 relative.
+			tol := 1e-13 / math.Min(1, b-a)
+			if b-a < 1e-8 {
+				lf, _ := newLogitPoint(0.5 * (a + b)).logDensity()
+				want, tol = lf+math.Log(b-a), 1e-12
+				if !logitNear(lp, want, tol) {
+					t.Fatalf("log P(%g, %g) = %v, f(mid)(b-a) gives %v", a, b, lp, want)
+				}
+			}
+			if !logitNear(lp, want, tol) {
+				t.Fatalf("log P(%g, %g) = %v, log space %v", a, b, lp, want)
+			}
+			lfa, _ := pa.logDensity()
+			lfb, _ := pb.logDensity()
+			if wa, wb := math.Exp(lfa-want), math.Exp(lfb-want); !logitNear(ra, wa, tol) || !logitNear(rb, wb, tol) {
+				t.Fatalf("f/P at (%g, %g) = %v, %v; log space %v, %v", a, b, ra, rb, wa, wb)
+			}
+		}
+	}
+	if fast == 0 {
+		t.Fatal("logitBetween took no pair")
+	}
+}
+
+// TestLogitTails checks sums of log-tails with one shared log1p
+// (logitTails) against the sum of each point's own log F or log(1 - F),
+// over runs of up to six points of the grid, each side.
+func TestLogitTails(t *testing.T) {
+	zs := logitGrid()
+	for i := range zs {
+		for n := 1; n <= 6 && i+n <= len(zs); n++ {
+			for side := 0; side < 1<<n; side++ {
+				var s logitTails
+				want := 0.0
+				for j, z := range zs[i : i+n] {
+					p := newLogitPoint(z)
+					upper := side>>j&1 == 1
+					s.add(p, upper)
+					if upper {
+						want += p.logFc()
+					} else {
+						want += p.logF()
+					}
+				}
+				if got := s.sum(); !logitNear(got, want, 1e-14) {
+					t.Fatalf("tails of %v (sides %b) = %v, one by one %v", zs[i:i+n], side, got, want)
+				}
+			}
 		}
 	}
 }

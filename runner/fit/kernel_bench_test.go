@@ -1,0 +1,87 @@
+package fit
+
+import "testing"
+
+// BenchmarkBlockKernels times the row kernels of one block of 4096 rows
+// (log-probabilities with first and second derivatives, as a Newton
+// iteration asks) for the parallel-effects models of the speed targets,
+// logit link, at the marginal cutpoints: CPU ns per block (cpu-ns/op).
+func BenchmarkBlockKernels(b *testing.B) {
+	for _, tc := range []struct {
+		name string
+		J    int
+		c    Comparison
+	}{
+		{"binary", 2, Cumulative},
+		{"cumulative", 5, Cumulative},
+		{"stage", 5, Stage},
+		{"adjacent", 5, Adjacent},
+	} {
+		d := speedData(blockRows, 10, tc.J)
+		m := speedModel(tc.c, Parallel, 10)
+		ly, err := newLayout(m, d.J, d.Predictors)
+		if err != nil {
+			b.Fatal(err)
+		}
+		p := newProblem(d.design(), m, ly, 1)
+		theta := make([]float64, len(ly.params))
+		copy(theta, marginalCutpoints(d, m))
+		for i := range theta[d.J-1:] {
+			theta[d.J-1+i] = 0.05 * float64(i%3-1)
+		}
+		c := p.coefs(theta)
+		s := p.newScratch()
+		p.blockColumns(c, 0, blockRows, s)
+		p.blockLinear(c, 0, blockRows, s)
+		b.Run(tc.name, func(b *testing.B) {
+			cpu0 := processCPU()
+			for i := 0; i < b.N; i++ {
+				a := p.newAcc(0)
+				if !p.blockKernels(c, 0, blockRows, 2, false, a, s) {
+					b.Fatal("kernel failed")
+				}
+			}
+			b.ReportMetric(float64(processCPU()-cpu0)/float64(b.N), "cpu-ns/op")
+		})
+	}
+}
+
+// BenchmarkIterationParts runs ProfileIteration (one worker) on 2e5 rows of
+// the parallel-effects models of the speed targets and reports its parts,
+// CPU ms per iteration: the iteration, its cross-products and row kernels,
+// and the reference X'WX; "ratio" is iteration / (X'WX + kernels), the
+// speed target's ratio.
+func BenchmarkIterationParts(b *testing.B) {
+	for _, tc := range []struct {
+		name string
+		J    int
+		c    Comparison
+	}{
+		{"binary", 2, Cumulative},
+		{"cumulative", 5, Cumulative},
+		{"stage", 5, Stage},
+		{"adjacent", 5, Adjacent},
+	} {
+		d := speedData(200000, 10, tc.J)
+		m := speedModel(tc.c, Parallel, 10)
+		b.Run(tc.name, func(b *testing.B) {
+			var it, cr, ke, ref float64
+			for i := 0; i < b.N; i++ {
+				pr, err := ProfileIteration(d, m, 1, 1)
+				if err != nil {
+					b.Fatal(err)
+				}
+				it += float64(pr.Iteration) / 1e6
+				cr += float64(pr.CrossProducts) / 1e6
+				ke += float64(pr.Kernels) / 1e6
+				ref += float64(pr.Reference) / 1e6
+			}
+			n := float64(b.N)
+			b.ReportMetric(it/n, "iter-ms")
+			b.ReportMetric(cr/n, "cross-ms")
+			b.ReportMetric(ke/n, "kernel-ms")
+			b.ReportMetric(ref/n, "xwx-ms")
+			b.ReportMetric(it/(ref+ke), "ratio")
+		})
+	}
+}
