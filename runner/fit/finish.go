@@ -286,7 +286,7 @@ func (p *problem) fittedCheck(theta []float64) (float64, int) {
 				continue
 			}
 			for m := range L {
-				L[m] = c.tau[m] - s.eta[m*rows+i]
+				L[m] = c.tau[m] - s.eta[m*s.etaStride+i]
 			}
 			lp, ok := p.ker.eval(L, d.y[r], nil, nil)
 			minLP = math.Min(minLP, lp)
