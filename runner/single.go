@@ -74,10 +74,20 @@ func FitOneChecked(s SingleFit) (*fit.Result, *data.Dataset, *SingleChecks, erro
 	if err != nil || !res.OK() {
 		return res, ld.Data, nil, err
 	}
-	null, _ := fit.FitNull(ld.FitData, res.Model, a.Fit)
-	o := overallFit(ld.FitData, res, null, a.Errors.Sampling)
-	c := &SingleChecks{Overall: OverallRecord{Model: res.Name, Null: fit.ModelID(res.Model.ComparisonName(), "thresholds-only", res.Model.Link), Overall: o}}
+	// The comparison with the thresholds-only model (its spread of the
+	// linear predictor a serial pass) beside the goodness of fit; both
+	// only read the data and the fit.
+	var o fit.Overall
+	done := make(chan struct{})
+	go func() {
+		defer close(done)
+		null, _ := fit.FitNull(ld.FitData, res.Model, a.Fit)
+		o = overallFit(ld.FitData, res, null, a.Errors.Sampling)
+	}()
+	c := &SingleChecks{}
 	c.Lipsitz, c.PatternSplit = goodnessOfFit(ld, res, a.Fit, a.Errors.Sampling)
+	<-done
+	c.Overall = OverallRecord{Model: res.Name, Null: fit.ModelID(res.Model.ComparisonName(), "thresholds-only", res.Model.Link), Overall: o}
 	return res, ld.Data, c, nil
 }
 
