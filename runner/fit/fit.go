@@ -285,16 +285,7 @@ func (d *Data) weight(i int) float64 {
 
 // NObs is the number of observations: the rows, or the sum of the
 // frequency weights.
-func (d *Data) NObs() float64 {
-	if d.Weights == nil {
-		return float64(len(d.Y))
-	}
-	s := 0.0
-	for _, w := range d.Weights {
-		s += w
-	}
-	return s
-}
+func (d *Data) NObs() float64 { return weightSum(d.Weights, len(d.Y)) }
 
 func (d *Data) categories() []string {
 	if len(d.Categories) == d.J {

@@ -395,6 +395,11 @@ func (p *problem) maxPhi(theta []float64) float64 {
 	return mx
 }
 
+// startGap: a start is abandoned at its first evaluation when its Newton
+// decrement times startGap falls short of the gap to the best
+// log-likelihood (runStart).
+const startGap = 20
+
 // reasonFlat: Newton stopped at a stationary point where the information
 // is singular (a flat direction, such as phi when gamma = 0).
 const reasonFlat = "the log-likelihood is flat (singular information)"
@@ -415,12 +420,25 @@ func (p *problem) runStart(theta, anchor []float64, opt Options, best float64) n
 		if it >= 3 && !pd && dec <= 1e-10*math.Max(1, math.Abs(ll)) {
 			return reasonFlat
 		}
-		if it < 1 || math.IsInf(best, -1) || math.IsNaN(prev) {
+		if math.IsInf(best, -1) {
+			return ""
+		}
+		gap := best - sameLL - ll
+		if it == 0 {
+			// At the start itself there is no progress to judge by: a
+			// concave point whose quadratic model gains less than a
+			// fortieth of what separates it from the best (dec/2 against
+			// the gap) lies near another, lower maximum.
+			if pd && startGap*dec < gap {
+				return fmt.Sprintf("abandoned: it could not reach the best log-likelihood %.6f", best)
+			}
+			return ""
+		}
+		if math.IsNaN(prev) {
 			return ""
 		}
 		// Stop when neither the quadratic model of the next step nor the
 		// recent progress could bring this start to the best so far.
-		gap := best - sameLL - ll
 		if 2*dec < gap && 5*(ll-prev) < gap {
 			return fmt.Sprintf("abandoned: it could not reach the best log-likelihood %.6f", best)
 		}

@@ -1,6 +1,10 @@
 package fit
 
-import "math/rand/v2"
+import (
+	"math"
+	"math/rand/v2"
+	"slices"
+)
 
 // A fit on many rows without a start of the user's first maximizes the
 // log-likelihood on a fixed subsample of the rows (one row drawn from each
@@ -78,8 +82,9 @@ func (d *design) subsample(J, above int) *design {
 
 // subsampleNewton runs the Newton iterations of p from the maximum on the
 // subsample sub (model and layout those of p), the subsample's own
-// iterations starting at theta0. ok is false when there is no subsample,
-// or it or the full-data iterations from it do not converge.
+// iterations starting at theta0, after steps with the subsample's
+// curvature (curvatureSteps). ok is false when there is no subsample, or it
+// or the full-data iterations from it do not converge.
 func (p *problem) subsampleNewton(sub *design, theta0 []float64, opt Options) (st newtonState, ok bool) {
 	if sub == nil {
 		return st, false
@@ -88,6 +93,103 @@ func (p *problem) subsampleNewton(sub *design, theta0 []float64, opt Options) (s
 	if !sst.converged {
 		return st, false
 	}
-	st = p.newton(sst.theta, opt.MaxIter, opt.Scoring)
+	st = fromSubsample(p.evaluator(opt.Scoring), sst, p.d.totalWeight()/sub.totalWeight(), sub.n, opt.MaxIter)
 	return st, st.converged
+}
+
+// fromSubsample runs the full-data Newton iterations (evaluations ev) from
+// the subsample's maximum sst, after its curvature steps; scale is the
+// full data's total weight over the subsample's, m the subsample's rows.
+func fromSubsample(ev evalFunc, sst newtonState, scale float64, m, maxIter int) newtonState {
+	theta, first := curvatureSteps(ev, sst, scale, m)
+	return newtonLoop(theta, maxIter, reuseFirst(ev, theta, first))
+}
+
+// maxCurvatureSteps bounds the curvature steps before the Newton
+// iterations.
+const maxCurvatureSteps = 3
+
+// curvatureSteps: the subsample's maximum lies a few standard errors from
+// the full data's, too far for the convergence rule to begin there: its
+// Newton decrement on the full data is about P (n/m - 1) for P parameters,
+// n rows and m in the subsample, where the rule asks for 1e-6 |LL| before
+// the last two steps. A pass over the data for the score alone, and a
+// Newton step with the subsample's information scaled up to the full
+// data's weight, shrink the decrement by about P/m (the squared relative
+// error of that information); such steps are taken, each with a pass for
+// the score, until the decrement they leave is predicted (with a margin)
+// below 1e-6 |LL|. The Newton iterations then begin in that region and
+// need two evaluations with second derivatives to converge and one for the
+// last step, instead of three and one. Each step is kept only when it
+// raises the log-likelihood; otherwise the iterations begin at the last
+// point reached (the subsample's maximum at worst), as without the steps.
+// first is the full-data evaluation at theta to second order, when made.
+func curvatureSteps(ev evalFunc, sst newtonState, scale float64, m int) (theta []float64, first *evalOut) {
+	theta = sst.theta
+	a := ev(theta, 1)
+	if a.bad || sst.hess == nil {
+		return theta, nil
+	}
+	H := make([]float64, len(sst.hess))
+	for i, v := range sst.hess {
+		H[i] = scale * v
+	}
+	shrink := 1.5 * float64(len(theta)) / float64(m)
+	prev := math.NaN()
+	for k := 0; k < maxCurvatureSteps; k++ {
+		d, dec, pd := newtonDirection(H, a.g)
+		if !pd {
+			return theta, nil
+		}
+		if k > 0 {
+			// The shrinking observed, when slower than expected.
+			shrink = math.Max(shrink, dec/prev)
+		}
+		prev = dec
+		next := addScaled(theta, d, 1)
+		last := shrink*dec <= 1e-6*math.Max(1, math.Abs(a.ll)) || k == maxCurvatureSteps-1
+		order := 1
+		if last {
+			order = 2
+		}
+		b := ev(next, order)
+		if b.bad || !(b.ll > a.ll) {
+			return theta, nil
+		}
+		theta, a = next, b
+		if last {
+			return theta, &a
+		}
+	}
+	return theta, nil
+}
+
+// reuseFirst is ev, except that its first call, when it asks for theta to
+// at most the order of first, returns first (nil: none) without
+// evaluating again.
+func reuseFirst(ev evalFunc, theta []float64, first *evalOut) evalFunc {
+	return func(th []float64, order int) evalOut {
+		if f := first; f != nil {
+			first = nil
+			if order <= f.order && slices.Equal(th, theta) {
+				return *f
+			}
+		}
+		return ev(th, order)
+	}
+}
+
+// totalWeight is the sum of the rows' weights.
+func (d *design) totalWeight() float64 { return weightSum(d.w, d.n) }
+
+// weightSum is the sum of the frequency weights w of n rows (nil: n).
+func weightSum(w []float64, n int) float64 {
+	if w == nil {
+		return float64(n)
+	}
+	s := 0.0
+	for _, v := range w {
+		s += v
+	}
+	return s
 }

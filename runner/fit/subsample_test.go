@@ -99,3 +99,51 @@ func TestSubsampleStageFailureAsBefore(t *testing.T) {
 		t.Errorf("separated data:\n%s\n%s", dumpResult(got, err), dumpResult(want, werr))
 	}
 }
+
+// TestCurvatureStepsPasses counts the full-data evaluations after the
+// subsample stage, for every comparison on data with weights and an
+// offset, as many rows as the stage needs by default (below that the
+// subsample's curvature is too rough for the steps to pay): the curvature steps (score only) bring the start into the region
+// where the convergence rule needs two evaluations with second derivatives
+// and the last step, three in all, where the iterations from the
+// subsample's maximum itself need at least four; the maximum is the same
+// (log-likelihood within 1e-9 relative).
+func TestCurvatureStepsPasses(t *testing.T) {
+	d := synthData(77, defaultSubsampleAbove, 3, 4, true, true)
+	des := d.design().compressed()
+	sub := des.subsample(d.J, defaultSubsampleAbove)
+	for _, c := range allComparisons {
+		m := Model{Comparison: c.cmp, Backward: c.backward, Link: Logit, Effects: []Effect{Nonparallel, Parallel, Parallel}}
+		ly, err := newLayout(m, d.J, d.Predictors)
+		if err != nil {
+			t.Fatal(err)
+		}
+		sst := newProblem(sub, m, ly, 2).newton(startValues(d, m, ly), 200, false)
+		if !sst.converged {
+			t.Fatalf("%s: the subsample's fit did not converge", m.Name())
+		}
+		ev := newProblem(des, m, ly, 2).evaluator(false)
+		var calls [3]int
+		counted := func(th []float64, order int) evalOut {
+			calls[order]++
+			return ev(th, order)
+		}
+		st := fromSubsample(counted, sst, des.totalWeight()/sub.totalWeight(), sub.n, 200)
+		steps := calls
+		calls = [3]int{}
+		plain := newtonLoop(sst.theta, 200, counted)
+		if !st.converged || !plain.converged {
+			t.Fatalf("%s: converged %v, from the subsample's maximum %v", m.Name(), st.converged, plain.converged)
+		}
+		if steps[2] != 3 || steps[1] < 1 || steps[1] > maxCurvatureSteps || steps[0] != 0 {
+			t.Errorf("%s: %d evaluations with second derivatives, %d with the score only, %d of the value alone", m.Name(), steps[2], steps[1], steps[0])
+		}
+		if calls[2] < 4 {
+			t.Errorf("%s: from the subsample's maximum %d evaluations with second derivatives", m.Name(), calls[2])
+		}
+		if math.Abs(st.ll-plain.ll) > 1e-9*math.Abs(plain.ll) {
+			t.Errorf("%s: log-likelihood %.12f, from the subsample's maximum %.12f", m.Name(), st.ll, plain.ll)
+		}
+		t.Logf("%s: %d + %d evaluations (score only + second derivatives), from the subsample's maximum %d", m.Name(), steps[1], steps[2], calls[2])
+	}
+}

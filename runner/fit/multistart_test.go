@@ -1,0 +1,96 @@
+package fit
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"strings"
+	"testing"
+)
+
+// TestAbandonedStartsKeepTheBest: a start is abandoned when it cannot reach
+// the best log-likelihood found so far, at its first evaluation when its
+// quadratic model says so. On simulated data (ridgeData) the stage model
+// with two constrained predictors has one maximum, and starts whose
+// approximate maximum lies towards the ridge g -> 0, |phi| -> inf, which
+// climb far below it (found by running every start of the search on its
+// own). A start in the basin of the maximum is never abandoned when such a
+// start ran first, and reaches the maximum; a start towards the ridge, with
+// the maximum known, is abandoned after one evaluation.
+func TestAbandonedStartsKeepTheBest(t *testing.T) {
+	d := ridgeData(20000)
+	m := Model{Comparison: Stage, Link: Logit, Effects: make([]Effect, 10)}
+	m.Effects[0], m.Effects[1] = Constrained, Constrained
+	if err := d.validate(); err != nil {
+		t.Fatal(err)
+	}
+	ly, err := newLayout(m, d.J, d.Predictors)
+	if err != nil {
+		t.Fatal(err)
+	}
+	opt := Options{MaxIter: 200}
+	sh := &shared{fitted: map[string]gridFit{}}
+	aux, err := newAuxiliary(d, m, ly, opt, sh)
+	if err != nil || !aux.screen {
+		t.Fatalf("auxiliary fits: %v (screened %v)", err, aux != nil && aux.screen)
+	}
+	pr := newProblem(sh.design(d), m, ly, 2)
+	// Every start run on its own, from where the screening begins it.
+	var best, worst *newtonState
+	var bestStart, worstStart []float64
+	for _, s := range aux.starts(d, m, ly, opt) {
+		th := aux.sur.maximize(s.theta)
+		st := pr.runStart(th, nil, opt, math.Inf(-1))
+		t.Logf("%-36s ll %.6f after %d iterations: %s", s.label, st.ll, st.iters, st.reason)
+		if st.converged && (best == nil || st.ll > best.ll) {
+			best, bestStart = &st, th
+		}
+		if worst == nil || st.ll < worst.ll {
+			worst, worstStart = &st, th
+		}
+	}
+	if best == nil || best.ll-worst.ll < 10 {
+		t.Fatalf("some starts should end far below the maximum")
+	}
+	// The maximum's basin after the start that went far below it.
+	st := pr.runStart(bestStart, nil, opt, worst.ll)
+	if !st.converged || math.Abs(st.ll-best.ll) > sameLL {
+		t.Errorf("after the worse start: ll %.6f (%s), want %.6f", st.ll, st.reason, best.ll)
+	}
+	// The worse start after the maximum: abandoned at once.
+	st = pr.runStart(worstStart, nil, opt, best.ll)
+	if !strings.HasPrefix(st.reason, "abandoned") || st.iters != 0 {
+		t.Errorf("the worse start after the maximum: %s after %d iterations", st.reason, st.iters)
+	}
+}
+
+// ridgeData simulates n rows of a five-category outcome from ten
+// predictors (alternately 0/1 and standard normal), each with slope 0.3 in a
+// cumulative logit whose slopes grow by 10% per equation. Fixed seed.
+func ridgeData(n int) *Data {
+	rng := rand.New(rand.NewPCG(42, 3))
+	d := &Data{J: 5, Y: make([]int, n)}
+	for k := 0; k < 10; k++ {
+		d.Predictors = append(d.Predictors, fmt.Sprintf("x%d", k+1))
+	}
+	for i := range d.Y {
+		eta := 0.0
+		for k := 0; k < 10; k++ {
+			v := rng.NormFloat64()
+			if k%2 == 0 {
+				v = float64(rng.IntN(2))
+			}
+			d.X = append(d.X, v)
+			eta += 0.3 * v
+		}
+		u, y := rng.Float64(), 4
+		for m := 0; m < 4; m++ {
+			if u < Logit.CDF(-1.5+float64(m)-(1+0.1*float64(m))*eta) {
+				y = m
+				break
+			}
+		}
+		d.Y[i] = y
+	}
+	return d
+}
