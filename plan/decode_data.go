@@ -127,11 +127,12 @@ func (d *decoder) decodeImputation(n *yaml.Node) *Imputation {
 	return im
 }
 
-// expandParts resolves data.parts: names against the plan's folder, a
-// pattern (with * ? or [) into its matches in name order, named relative
-// to the folder as the pattern is. A pattern that matches nothing stays
-// as written, for checkParts to report.
-func expandParts(dir string, parts []string) (files, paths []string) {
+// ExpandParts resolves data.parts (and ordplan fit --parts, against the
+// working folder): names against the plan's folder, a pattern (with * ? or
+// [) into its matches in name order, named relative to the folder as the
+// pattern is. A pattern that matches nothing stays as written, for
+// checkParts to report.
+func ExpandParts(dir string, parts []string) (files, paths []string) {
 	for _, pat := range parts {
 		full := resolveDataPath(dir, pat)
 		var matches []string

@@ -7,7 +7,7 @@ import "ordplan/runner/fit"
 func (d *decoder) applyDefaults(p *Plan) {
 	p.Data.Path = resolveDataPath(p.Dir, p.Data.File)
 	if p.Data.Parts != nil {
-		p.Data.PartFiles, p.Data.PartPaths = expandParts(p.Dir, p.Data.Parts)
+		p.Data.PartFiles, p.Data.PartPaths = ExpandParts(p.Dir, p.Data.Parts)
 	}
 	if im := p.Data.Imputed; im != nil {
 		im.Path = resolveDataPath(p.Dir, im.File)

@@ -205,7 +205,8 @@ func TestFitPrintsChecks(t *testing.T) {
 // one data set (the reader of the plan key data.parts): the fit, its
 // checks (the Lipsitz test included) and the JSON are those of one file
 // holding the same rows, byte for byte; the table differs only in the line
-// naming the data. General Social Survey extract (Long 1997), cut into
+// naming the data; a pattern among the parts gives its files in name order.
+// General Social Survey extract (Long 1997), cut into
 // three parts of consecutive rows.
 func TestFitPartsReadLocally(t *testing.T) {
 	src, err := os.ReadFile(filepath.Join(refDir, "gsswarm.csv"))
@@ -239,6 +240,11 @@ func TestFitPartsReadLocally(t *testing.T) {
 		held = strings.Replace(held, "parts "+strings.Join(parts, ", "), wholePath, 1)
 		if held != one {
 			t.Errorf("%v: the fit over parts read here differs from the fit of one file:\n%s\n---\n%s", model, one, held)
+		}
+		// A pattern gives its files in name order, as in data.parts.
+		byPattern, errs, code := runCLI(append(args, "--parts", filepath.Join(dir, "part*.csv"))...)
+		if byPattern = strings.Replace(byPattern, "parts "+strings.Join(parts, ", "), wholePath, 1); code != 0 || byPattern != one {
+			t.Errorf("%v: --parts %s: exit %d %s\n%s", model, filepath.Join(dir, "part*.csv"), code, errs, byPattern)
 		}
 		if !regexp.MustCompile(`"name": "lipsitz",\s+"ok": true`).MatchString(one) && !strings.Contains(one, "Lipsitz test (10 groups of predicted score): chi2(9) = ") {
 			t.Errorf("%v: no Lipsitz test:\n%s", model, one)

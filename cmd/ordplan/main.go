@@ -6,9 +6,11 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"path/filepath"
 	"runtime/debug"
 	"strings"
 
+	"ordplan/plan"
 	"ordplan/render"
 	"ordplan/runner"
 	"ordplan/runner/data"
@@ -218,7 +220,7 @@ func defineFitFlags(fs *flag.FlagSet) *fitFlags {
 		level:       fs.Float64("confidence-level", 0.95, "confidence level of the intervals"),
 		asJSON:      fs.Bool("json", false, "print one JSON object instead of the table"),
 		queue:       addQueueFlags(fs, "with --parts: the NATS JetStream server whose workers hold the parts and sum the fit over them", true),
-		parts:       fs.String("parts", "", "the data held as parts instead of --data: files with the same columns, comma separated, read in order as one data set (as the plan key data.parts); with --queue, workers hold the parts and sum the fit over them"),
+		parts:       fs.String("parts", "", "the data held as parts instead of --data: files with the same columns, comma separated (names or patterns, parts/*.csv: its files in name order), read in order as one data set (as the plan key data.parts); with --queue, workers hold the parts and sum the fit over them"),
 	}
 	fs.TextVar(&f.approach, "approach", fit.Cumulative, "how categories are compared: "+fit.ComparisonWords.OrList())
 	fs.TextVar(&f.link, "link", fit.Logit, "link: "+fit.LinkWords.OrList())
@@ -304,7 +306,11 @@ func (f *fitFlags) single() (runner.SingleFit, error) {
 	for _, t := range dspec.Terms {
 		termNames = append(termNames, t.Name)
 	}
-	s := runner.SingleFit{DataFile: *f.dataFile, Parts: checkedList(*f.parts), Outcome: *f.outcome, Categories: checkedList(*f.categories),
+	parts, err := f.partFiles()
+	if err != nil {
+		return runner.SingleFit{}, err
+	}
+	s := runner.SingleFit{DataFile: *f.dataFile, Parts: parts, Outcome: *f.outcome, Categories: checkedList(*f.categories),
 		Predictors: termNames, Design: &dspec, Approach: f.approach, Backward: *f.direction == "backward",
 		Link: f.link, Nonparallel: checkedList(*f.nonparallel), Weights: *f.weights, Offset: *f.offset,
 		Refuse: *f.missing == "refuse", Covariance: f.covariance, Cluster: *f.cluster, Sampling: *f.weightKind == "sampling"}
@@ -325,6 +331,24 @@ func (f *fitFlags) single() (runner.SingleFit, error) {
 		s.Groups = []runner.Group{{Predictors: s.Predictors}}
 	}
 	return s, nil
+}
+
+// partFiles are the files of --parts: names, and patterns (parts/*.csv)
+// expanded into their files in name order, as the plan key data.parts
+// reads them (plan.ExpandParts); nil without --parts.
+func (f *fitFlags) partFiles() ([]string, error) {
+	parts := checkedList(*f.parts)
+	if parts == nil {
+		return nil, nil
+	}
+	files, paths := plan.ExpandParts(".", parts)
+	for i, file := range files {
+		if _, err := os.Stat(paths[i]); err != nil && strings.ContainsAny(file, "*?[") {
+			where, _ := filepath.Abs(paths[i])
+			return nil, fmt.Errorf("--parts: the pattern %q matches no file (looked for %s)", file, where)
+		}
+	}
+	return paths, nil
 }
 
 // baselineOf is the baseline-category view --baseline asks for (nil when
