@@ -24,7 +24,7 @@ func main() {
 	ingestRows := flag.Int("ingest-rows", 1_000_000, "rows of the files the ingest part reads")
 	ingestRepeats := flag.Int("ingest-repeats", 5, "readings of each file by each reader")
 	child := flag.String("ingest-child", "", "(internal) read this file once and print what was measured")
-	childMode := flag.String("ingest-mode", "load", "(internal) the reader of -ingest-child: load or stream")
+	childMode := flag.String("ingest-mode", "load", "(internal) the reader of -ingest-child: load, pin (Pin, then Load: a plan run's reading) or stream")
 	childDelim := flag.String("ingest-delim", "", "(internal) the delimiter of -ingest-child")
 	childComma := flag.Bool("ingest-decimal-comma", false, "(internal) -ingest-child has a decimal comma")
 	ingestWrite := flag.String("ingest-write", "", "write the files of -only ingest into this folder and stop (for profiling a reading: bench -ingest-child FILE)")

@@ -103,21 +103,36 @@ func (d Dialect) number(cell string) (float64, string) {
 // checkUTF8 refuses text that is not UTF-8, from the first bytes read (a
 // rune cut at the end of the sample is not counted).
 func checkUTF8(head []byte) string {
-	if utf8.Valid(head) {
-		return ""
+	if i := invalidUTF8(head, true); i >= 0 {
+		return notUTF8(head, i)
 	}
-	for i := 0; i < len(head); {
-		r, n := utf8.DecodeRune(head[i:])
+	return ""
+}
+
+// invalidUTF8 is the index of the first byte of b that is not valid UTF-8,
+// or -1 when there is none; a rune cut by the end of b is not counted when
+// cut is true (b ends where the bytes read end).
+func invalidUTF8(b []byte, cut bool) int {
+	if utf8.Valid(b) {
+		return -1
+	}
+	for i := 0; i < len(b); {
+		r, n := utf8.DecodeRune(b[i:])
 		if r == utf8.RuneError && n <= 1 {
-			if len(head)-i < utf8.UTFMax && !utf8.FullRune(head[i:]) {
-				return ""
+			if cut && len(b)-i < utf8.UTFMax && !utf8.FullRune(b[i:]) {
+				return -1
 			}
-			line := 1 + bytes.Count(head[:i], []byte{'\n'})
-			return fmt.Sprintf("is not UTF-8 text (byte 0x%02x on line %d is not valid UTF-8; perhaps Latin-1 or Windows-1252): save the file as UTF-8", head[i], line)
+			return i
 		}
 		i += n
 	}
-	return ""
+	return -1
+}
+
+// notUTF8 is the message for text whose byte i is not valid UTF-8.
+func notUTF8(text []byte, i int) string {
+	line := 1 + bytes.Count(text[:i], []byte{'\n'})
+	return fmt.Sprintf("is not UTF-8 text (byte 0x%02x on line %d is not valid UTF-8; perhaps Latin-1 or Windows-1252): save the file as UTF-8", text[i], line)
 }
 
 // SuggestDialect looks at the first lines of a CSV file (its bytes) and,

@@ -26,6 +26,7 @@ var pins = struct {
 
 type pinned struct {
 	raw  []byte
+	sum  string // the bytes' hex SHA-256
 	refs int
 }
 
@@ -46,23 +47,24 @@ func pinnedBytes(path string) ([]byte, bool) {
 	return nil, false
 }
 
-// Pin reads the file at path once and makes every reader of this package
-// use these bytes until the returned function is called. It returns the
-// bytes' hex SHA-256. Pins nest: the bytes of the first pin are kept until
-// the last unpin.
+// Pin reads the file at path once (as ReadFile does, the hash taken while
+// it is read) and makes every reader of this package use these bytes
+// until the returned function is called. It returns the bytes' hex
+// SHA-256. Pins nest: the bytes of the first pin are kept until the last
+// unpin.
 func Pin(path string) (string, func(), error) {
 	key := pinKey(path)
 	pins.Lock()
 	p, ok := pins.m[key]
 	pins.Unlock()
 	if !ok {
-		raw, err := ReadFile(path)
+		raw, sum, err := readChecked(path, true)
 		if err != nil {
 			return "", nil, err
 		}
 		pins.Lock()
 		if p, ok = pins.m[key]; !ok {
-			p = &pinned{raw: raw}
+			p = &pinned{raw: raw, sum: sum}
 			pins.m[key] = p
 		}
 		pins.Unlock()
@@ -80,7 +82,7 @@ func Pin(path string) (string, func(), error) {
 			}
 		})
 	}
-	return HashBytes(p.raw), unpin, nil
+	return p.sum, unpin, nil
 }
 
 // HashBytes returns the hex SHA-256 of b.
@@ -91,28 +93,41 @@ func HashBytes(b []byte) string {
 
 // ReadFile returns the bytes of a data file: the pinned ones, or the whole
 // file when it is a regular file; anything else is an *Error saying what
-// the path is. The bytes are checked for a recognizable non-CSV format.
+// the path is. The bytes are checked for a recognizable non-CSV format
+// and, for text, for UTF-8.
 func ReadFile(path string) ([]byte, error) {
 	if raw, ok := pinnedBytes(path); ok {
 		return raw, nil
 	}
+	raw, _, err := readChecked(path, false)
+	return raw, err
+}
+
+// readChecked reads the file at path whole and checks its bytes (see
+// ReadFile), and gives their hex SHA-256 when sum is true.
+func readChecked(path string, sum bool) ([]byte, string, error) {
 	if err := CheckRegular(path); err != nil {
-		return nil, err
+		return nil, "", err
 	}
-	raw, err := os.ReadFile(path)
+	f, err := os.Open(path)
 	if err != nil {
-		return nil, &Error{File: path, Msg: "cannot read file: " + osReason(err), Err: err}
+		return nil, "", &Error{File: path, Msg: "cannot read file: " + osReason(err), Err: err}
 	}
-	if IsWorkbook(path) || IsParquet(path) {
-		return raw, nil
+	defer f.Close()
+	text := !IsWorkbook(path) && !IsParquet(path)
+	raw, hash, bad, err := readWhole(f, path, sum, text)
+	if err != nil {
+		return nil, "", err
 	}
-	if msg := sniff(raw); msg != "" {
-		return nil, &Error{File: path, Msg: msg}
+	if text {
+		if msg := sniff(raw); msg != "" {
+			return nil, "", &Error{File: path, Msg: msg}
+		}
+		if bad >= 0 {
+			return nil, "", &Error{File: path, Msg: notUTF8(raw, bad)}
+		}
 	}
-	if msg := checkUTF8(raw); msg != "" {
-		return nil, &Error{File: path, Msg: msg}
-	}
-	return raw, nil
+	return raw, hash, nil
 }
 
 // fileBytes returns the bytes of a data file, the pinned ones or the whole
@@ -127,25 +142,48 @@ func fileBytes(path string) ([]byte, error) {
 		return nil, err
 	}
 	defer f.Close()
-	var size int64
-	if st, ok := f.(interface{ Stat() (fs.FileInfo, error) }); ok {
-		if fi, err := st.Stat(); err == nil {
-			size = fi.Size()
-		}
+	if of, ok := f.(*os.File); ok {
+		raw, _, _, err := readWhole(of, path, false, false)
+		return raw, err
 	}
-	if of, ok := f.(*os.File); ok && size >= 2*readBlock {
-		if raw, ok := readBlocks(of, size); ok {
-			return raw, nil
-		}
-		if _, err := of.Seek(0, io.SeekStart); err != nil {
-			return nil, &Error{File: path, Msg: "cannot read file: " + osReason(err), Err: err}
-		}
-	}
-	buf := bytes.NewBuffer(make([]byte, 0, size+bytes.MinRead))
+	var buf bytes.Buffer
 	if _, err := buf.ReadFrom(f); err != nil {
 		return nil, &Error{File: path, Msg: "cannot read file: " + osReason(err), Err: err}
 	}
 	return buf.Bytes(), nil
+}
+
+// readWhole reads the open file f (at path) whole, with the hex SHA-256
+// of its bytes when sum is true (else "") and, when check is true, the
+// index of the first byte that is not valid UTF-8 (invalidUTF8 of the
+// whole, -1 when none or when check is false). A large file is read in
+// blocks on the workers (readBlocks); a small one, or one that changed
+// while read that way, in one stream.
+func readWhole(f *os.File, path string, sum, check bool) ([]byte, string, int, error) {
+	var size int64
+	if fi, err := f.Stat(); err == nil {
+		size = fi.Size()
+	}
+	if size >= 2*readBlock {
+		if raw, hash, bad, ok := readBlocks(f, size, sum, check); ok {
+			return raw, hash, bad, nil
+		}
+		if _, err := f.Seek(0, io.SeekStart); err != nil {
+			return nil, "", -1, &Error{File: path, Msg: "cannot read file: " + osReason(err), Err: err}
+		}
+	}
+	buf := bytes.NewBuffer(make([]byte, 0, size+bytes.MinRead))
+	if _, err := buf.ReadFrom(f); err != nil {
+		return nil, "", -1, &Error{File: path, Msg: "cannot read file: " + osReason(err), Err: err}
+	}
+	raw, hash, bad := buf.Bytes(), "", -1
+	if sum {
+		hash = HashBytes(raw)
+	}
+	if check {
+		bad = invalidUTF8(raw, true)
+	}
+	return raw, hash, bad, nil
 }
 
 // readBlock is the size of the pieces readBlocks reads.
@@ -154,25 +192,86 @@ const readBlock = 4 << 20
 // readBlocks reads a large file of the given size in pieces on the
 // workers (the copying out of the page cache, and the first touch of the
 // new memory, are then shared), once: each piece goes straight into its
-// place. False when the file turned out not to be of that size (it
-// changed while read) or a piece failed: the caller then reads it from the
-// start, in one stream, and reports any error.
-func readBlocks(f *os.File, size int64) ([]byte, bool) {
-	raw := make([]byte, size)
+// place. The SHA-256 (when sum is true) is taken on a goroutine of its
+// own, piece after piece as they arrive, so that it runs beside the
+// reading and the UTF-8 check (when check is true; on the workers, by
+// pieces: invalidUTF8Blocks). False when the file turned out not to be of
+// that size (it changed while read) or a piece failed: the caller then
+// reads it from the start, in one stream, and reports any error.
+func readBlocks(f *os.File, size int64, sum, check bool) (raw []byte, hash string, bad int, ok bool) {
+	raw = make([]byte, size)
 	adviseHuge(raw)
 	n := int((size + readBlock - 1) / readBlock)
-	var bad atomic.Bool
+	read := make([]chan struct{}, n) // closed once piece i is read (or failed)
+	for i := range read {
+		read[i] = make(chan struct{})
+	}
+	hashed := make(chan string, 1)
+	if sum {
+		go func() {
+			h := sha256.New()
+			for i := range n {
+				<-read[i]
+				lo := int64(i) * readBlock
+				h.Write(raw[lo:min(lo+readBlock, size)])
+			}
+			hashed <- hex.EncodeToString(h.Sum(nil))
+		}()
+	}
+	var failed atomic.Bool
 	forEach(n, func(i int) {
+		defer close(read[i])
 		lo := int64(i) * readBlock
 		if _, err := f.ReadAt(raw[lo:min(lo+readBlock, size)], lo); err != nil {
-			bad.Store(true)
+			failed.Store(true)
 		}
 	})
 	var one [1]byte
-	if k, _ := f.ReadAt(one[:], size); k != 0 || bad.Load() {
-		return nil, false
+	if k, _ := f.ReadAt(one[:], size); k != 0 || failed.Load() {
+		if sum {
+			<-hashed
+		}
+		return nil, "", -1, false
 	}
-	return raw, true
+	bad = -1
+	if check {
+		bad = invalidUTF8Blocks(raw, readBlock)
+	}
+	if sum {
+		hash = <-hashed
+	}
+	return raw, hash, bad, true
+}
+
+// invalidUTF8Blocks is invalidUTF8(raw, true), found by pieces of block
+// bytes on the workers: each piece from its first byte that
+// does not continue a rune begun before it (at most three are skipped:
+// the rune is the previous piece's) to the next piece's, so that every
+// rune is checked once, whole, and the first bad byte in the file is the
+// first one found in the pieces in order.
+func invalidUTF8Blocks(raw []byte, block int) int {
+	n := (len(raw) + block - 1) / block
+	start := func(i int) int {
+		at := min(i*block, len(raw))
+		for k := 0; i > 0 && k < 3 && at < len(raw) && raw[at]&0xC0 == 0x80; k++ {
+			at++
+		}
+		return at
+	}
+	first := make([]int, n)
+	forEach(n, func(i int) {
+		lo, hi := start(i), start(i+1)
+		first[i] = -1
+		if j := invalidUTF8(raw[lo:hi], hi == len(raw)); j >= 0 {
+			first[i] = lo + j
+		}
+	})
+	for _, j := range first {
+		if j >= 0 {
+			return j
+		}
+	}
+	return -1
 }
 
 // openData opens a data file for reading (see ReadFile).

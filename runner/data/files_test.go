@@ -3,6 +3,10 @@ package data
 import (
 	"bytes"
 	"compress/gzip"
+	"crypto/sha256"
+	"encoding/hex"
+	"fmt"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"strings"
@@ -148,5 +152,69 @@ func TestFileBytesInPieces(t *testing.T) {
 		if !bytes.Equal(got, want) {
 			t.Fatalf("size %d: the bytes read differ from the file's", size)
 		}
+	}
+}
+
+// The UTF-8 check by pieces finds the first bad byte the check of the
+// whole finds (unicode/utf8 is the reference), wherever runes, whole or
+// broken, fall against the pieces' edges.
+func TestInvalidUTF8Blocks(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 8))
+	parts := []string{"a", "\n", "é", "€", "😀", "\xe2\x82", "\x82", "\xff", "\xf0\x9f\x98", "\xed\xa0\x80"}
+	for trial := 0; trial < 3000; trial++ {
+		var b []byte
+		for len(b) < 1+rng.IntN(60) {
+			if rng.IntN(3) == 0 {
+				b = append(b, parts[rng.IntN(len(parts))]...)
+			} else {
+				b = append(b, parts[rng.IntN(5)]...)
+			}
+		}
+		want := invalidUTF8(b, true)
+		for _, block := range []int{1, 2, 3, 5, 7, 64} {
+			if got := invalidUTF8Blocks(b, block); got != want {
+				t.Fatalf("%q in pieces of %d: first bad byte %d, whole %d", b, block, got, want)
+			}
+		}
+	}
+}
+
+// Pin's hash, taken while a large file is read in pieces, is the SHA-256
+// of the file (crypto/sha256 over the bytes as written), and a bad byte
+// past the first pieces is named at its line as the check of the whole
+// names it.
+func TestPinLargeFile(t *testing.T) {
+	dir := t.TempDir()
+	var b bytes.Buffer
+	b.WriteString("y,a\n")
+	for b.Len() < 3*readBlock+12345 {
+		b.WriteString("1,0.5\n2,-1.25e3\n")
+	}
+	good := b.Bytes()
+	path := filepath.Join(dir, "big.csv")
+	if err := os.WriteFile(path, good, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	sum, unpin, err := Pin(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	unpin()
+	if want := sha256.Sum256(good); sum != hex.EncodeToString(want[:]) {
+		t.Fatalf("Pin's hash %s, sha256 of the file %x", sum, want)
+	}
+	bad := bytes.Clone(good)
+	at := 2*readBlock + 3 // a Latin-1 byte in the third piece
+	bad[at] = 0xe9
+	if err := os.WriteFile(path, bad, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	line := 1 + bytes.Count(bad[:at], []byte{'\n'})
+	want := fmt.Sprintf("%s: is not UTF-8 text (byte 0xe9 on line %d is not valid UTF-8; perhaps Latin-1 or Windows-1252): save the file as UTF-8", path, line)
+	if _, _, err := Pin(path); err == nil || err.Error() != want {
+		t.Fatalf("got %v, want %s", err, want)
+	}
+	if _, err := ReadFile(path); err == nil || err.Error() != want {
+		t.Fatalf("ReadFile: got %v, want %s", err, want)
 	}
 }
