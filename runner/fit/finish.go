@@ -28,6 +28,11 @@ type source struct {
 	// evaluations' smallest log-probability then gives the smallest
 	// fitted probability, and fitted is not needed).
 	positive bool
+	// negatives counts the rows with a negative category probability
+	// (nil: not known apart, fitted gives it): with it a model whose
+	// probabilities can be negative takes the smallest fitted probability
+	// from the evaluations too, and the pass skips the log-probabilities.
+	negatives func(theta []float64) int
 	// loglik evaluates the log-likelihood (order 0 is all finish asks of it).
 	loglik evalFunc
 	// expected returns the expected second derivatives (nil: the source
@@ -53,6 +58,10 @@ func localSource(d *Data, pr *problem, sd []float64) *source {
 			minP, neg := pr.fittedCheck(theta)
 			return minP, neg, nil
 		},
+		negatives: func(theta []float64) int {
+			_, neg := pr.fittedRows(theta, false)
+			return neg
+		},
 		positive: pr.ker.positive(),
 		loglik:   pr.evaluator(false),
 		expected: pr.expectedHessian,
@@ -75,10 +84,15 @@ func finish(src *source, m Model, ly *layout, st newtonState, opt Options) (*Res
 	// Phase 1: the estimates as reached.
 	r := src.newResult(m, ly, st)
 	var err error
-	if src.positive && st.minKnown {
+	switch {
+	case st.minKnown && src.positive:
 		r.MinFittedProb = math.Exp(st.minLogP)
-	} else if r.MinFittedProb, r.NegativeRows, err = src.fitted(st.theta); err != nil {
-		return nil, err
+	case st.minKnown && src.negatives != nil && !math.IsInf(st.ll, -1):
+		r.MinFittedProb, r.NegativeRows = math.Exp(st.minLogP), src.negatives(st.theta)
+	default:
+		if r.MinFittedProb, r.NegativeRows, err = src.fitted(st.theta); err != nil {
+			return nil, err
+		}
 	}
 	if math.IsInf(st.ll, -1) {
 		return r.fail(StatusNotConverged, "no valid starting point: "+st.reason), nil
@@ -260,6 +274,13 @@ func (ly *layout) fillEstimates(r *Result, m Model, st newtonState) {
 // whichever way it is reached. A row whose observed category has no
 // positive probability gives that probability (0 or less).
 func (p *problem) fittedCheck(theta []float64) (float64, int) {
+	return p.fittedRows(theta, true)
+}
+
+// fittedRows is fittedCheck; without withMin it only counts the rows with
+// a negative category probability (and returns +Inf for the smallest
+// probability): the evaluation that reached theta knows the smallest.
+func (p *problem) fittedRows(theta []float64, withMin bool) (float64, int) {
 	c := p.coefs(theta)
 	d, q := p.d, p.q
 	positive := p.ker.positive()
@@ -288,7 +309,10 @@ func (p *problem) fittedCheck(theta []float64) (float64, int) {
 			for m := range L {
 				L[m] = c.tau[m] - s.eta[m*s.etaStride+i]
 			}
-			lp, ok := p.ker.eval(L, d.y[r], nil, nil)
+			lp, ok := math.Inf(1), true
+			if withMin {
+				lp, ok = p.ker.eval(L, d.y[r], nil, nil)
+			}
 			minLP = math.Min(minLP, lp)
 			if positive && ok {
 				continue
