@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -119,16 +120,16 @@ const recordFile = "run.json"
 
 // claimOutput locks the output folder (lockOutput) and checks at once,
 // before any data row is read or fitted, the outputs whose names are known
-// before the run computes (fixed) and the record: a file there under one
-// of these names that no earlier run left as it is stops the run (O4).
-// Names known only from the results are checked again when written
-// (writeOutputs).
+// before the run computes (fixed) and the record, run.json: a file there
+// under one of these names that no earlier run left as it is stops the
+// run (O4, O5). Names known only from the results are checked again when
+// written (writeOutputs).
 func claimOutput(dir string, fixed []string) (*outputLock, error) {
 	lock, err := lockOutput(dir)
 	if err != nil {
 		return nil, err
 	}
-	if mine := usersFiles(dir, fixed, nil); len(mine) > 0 {
+	if mine := usersFiles(dir, slices.Concat(fixed, []string{recordFile}), nil); len(mine) > 0 {
 		lock.Unlock()
 		return nil, usersFilesError(dir, mine)
 	}

@@ -105,7 +105,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 		base := filepath.Base(planPath)
 		dir = filepath.Join("out", base[:len(base)-len(filepath.Ext(base))])
 	}
-	lock, err := claimOutput(dir, append(render.ReportFiles, recordFile))
+	lock, err := claimOutput(dir, render.ReportFiles)
 	if err != nil {
 		return fail(stderr, err)
 	}

@@ -6,6 +6,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"slices"
 
 	"ordplan/plan"
 	"ordplan/render"
@@ -51,7 +52,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 		base := filepath.Base(planPath)
 		dir = filepath.Join("out", base[:len(base)-len(filepath.Ext(base))]+"-rehearsal")
 	}
-	olock, err := claimOutput(dir, append(render.ReportFiles, simulatedFile, recordFile))
+	olock, err := claimOutput(dir, slices.Concat(render.ReportFiles, []string{simulatedFile}))
 	if err != nil {
 		return fail(stderr, err)
 	}
