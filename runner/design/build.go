@@ -3,11 +3,9 @@ package design
 import (
 	"fmt"
 	"math"
-	"runtime"
 	"slices"
 	"strconv"
 	"strings"
-	"sync"
 )
 
 // Term kinds.
@@ -178,49 +176,31 @@ func meanSD(v, w []float64) (float64, float64) {
 // of weights minus 1; 0 when the weights sum to 1 or less) of each of the S
 // columns of raw, n rows stored row after row, in two passes over the rows.
 func columnMeanSDs(raw []float64, S, n int, w []float64) (mean, sd []float64) {
-	mean, sd = make([]float64, S), make([]float64, S)
-	// Runs of columns in parallel: each column's sums take the rows in
-	// order, as one loop over every column does.
-	parts := min(S, runtime.GOMAXPROCS(0), max(1, n*S/(1<<16)))
-	if parts <= 1 {
-		columnMeanSDsOf(raw, S, 0, S, n, w, mean, sd)
-		return mean, sd
-	}
-	var wg sync.WaitGroup
-	for p := range parts {
-		wg.Go(func() { columnMeanSDsOf(raw, S, p*S/parts, (p+1)*S/parts, n, w, mean, sd) })
-	}
-	wg.Wait()
-	return mean, sd
-}
-
-// columnMeanSDsOf is columnMeanSDs of the columns lo..hi-1 of raw, written
-// into mean and sd.
-func columnMeanSDsOf(raw []float64, S, lo, hi, n int, w, mean, sd []float64) {
 	tot := 0.0
+	mean, sd = make([]float64, S), make([]float64, S)
 	for i := 0; i < n; i++ {
 		wi := weight(w, i)
 		tot += wi
-		for s, x := range raw[i*S+lo : i*S+hi] {
-			mean[lo+s] += wi * x
+		for s, x := range raw[i*S : (i+1)*S] {
+			mean[s] += wi * x
 		}
 	}
-	for s := lo; s < hi; s++ {
+	for s := range mean {
 		mean[s] /= tot
 	}
 	for i := 0; i < n; i++ {
 		wi := weight(w, i)
-		for s, x := range raw[i*S+lo : i*S+hi] {
-			sd[lo+s] += wi * (x - mean[lo+s]) * (x - mean[lo+s]) // the sum of squares until below
+		for s, x := range raw[i*S : (i+1)*S] {
+			sd[s] += wi * (x - mean[s]) * (x - mean[s]) // the sum of squares until below
 		}
 	}
-	for s := lo; s < hi; s++ {
-		ss := sd[s]
+	for s, ss := range sd {
 		sd[s] = 0
 		if tot > 1 {
 			sd[s] = math.Sqrt(ss / (tot - 1))
 		}
 	}
+	return mean, sd
 }
 
 func weight(w []float64, i int) float64 {

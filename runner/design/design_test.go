@@ -309,26 +309,6 @@ func TestSourceScalesAreMeanSD(t *testing.T) {
 	if want := math.Sqrt(32.0 / 7); math.Abs(scale[0]-want) > 1e-14 {
 		t.Errorf("weighted SD of 2,4x3,5x2,7,9 = %.17g, want sqrt(32/7) = %.17g", scale[0], want)
 	}
-	// On many rows the columns are summed in parallel runs: the same SDs,
-	// bit for bit (seeded values).
-	rng := rand.New(rand.NewPCG(4, 4))
-	big, bw := make([]float64, 40000*S), make([]float64, 40000)
-	for i := range big {
-		big[i] = 1e3*float64(i%S) + rng.NormFloat64()
-	}
-	for i := range bw {
-		bw[i] = rng.ExpFloat64()
-	}
-	_, sds := columnMeanSDs(big, S, len(bw), bw)
-	for s := 0; s < S; s++ {
-		c := make([]float64, len(bw))
-		for i := range c {
-			c[i] = big[i*S+s]
-		}
-		if _, sd := meanSD(c, bw); sds[s] != sd {
-			t.Errorf("many rows: column %d SD %v, alone %v", s, sds[s], sd)
-		}
-	}
 	one := make([]float64, S)
 	sourceScales(one, srcs, raw[:S], 1, nil)
 	for s, v := range one {
