@@ -149,7 +149,11 @@ func TestAgainstMiceNhanes(t *testing.T) {
 			k := fmt.Sprintf("est%d", i)
 			a, b := v.Get(t, k), frozen.Get(t, k)
 			for j := range a {
-				near(t, "frozen "+k, a[j], b[j], 1e-14)
+				// 1e-12, not the last bit: R's lm on the same
+				// sets gives results that differ by about 4e-14
+				// when R uses another BLAS (an optimized one
+				// installed beside the reference BLAS).
+				near(t, "frozen "+k, a[j], b[j], 1e-12)
 			}
 		}
 	}
