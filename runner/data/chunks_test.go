@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"math/big"
 	"math/rand/v2"
 	"reflect"
 	"slices"
@@ -276,9 +277,21 @@ func TestDecimalMatchesParseFloat(t *testing.T) {
 		"1." + strings.Repeat("0", 70) + "1", "-0.000000000000000000000000000000000000000000000000000000000000123456", "12345678901234567890.5e-3"} {
 		check(s)
 	}
-	for i := 0; i < 200000; i++ {
+	for i := 0; i < 300000; i++ {
 		var s string
-		switch i % 4 {
+		switch i % 6 {
+		case 4: // 15 to 19 digits and a power beyond 22: the Eisel-Lemire path
+			b := make([]byte, 15+rng.IntN(5))
+			for j := range b {
+				b[j] = byte('0' + rng.IntN(10))
+			}
+			s = string(b[:1]) + "." + string(b[1:]) + "e" + strconv.Itoa(rng.IntN(240)-120)
+		case 5: // a float64 halfway between two neighbours, and its neighbours' round-trip digits
+			x := math.Float64frombits(rng.Uint64() >> 2)
+			s = new(big.Float).SetPrec(200).Quo(new(big.Float).Add(new(big.Float).SetFloat64(x), new(big.Float).SetFloat64(math.Nextafter(x, 2*x+1))), big.NewFloat(2)).Text('g', 19)
+			if rng.IntN(2) == 0 {
+				s = strconv.FormatFloat(math.Nextafter(x, 0), 'g', -1, 64)
+			}
 		case 0:
 			s = strconv.FormatFloat(rng.NormFloat64()*math.Pow(10, float64(rng.IntN(40)-20)), 'g', 1+rng.IntN(17), 64)
 		case 1:
@@ -655,6 +668,33 @@ func TestParquetDoublesUnderDecimalComma(t *testing.T) {
 		}
 		if !reflect.DeepEqual(comma.X, point.X) || !reflect.DeepEqual(comma.Y, point.Y) {
 			t.Fatal("decimal comma: other values than with a point")
+		}
+	}
+}
+
+// Every entry of pow10Mantissas is the first 128 bits of 10^q, rounded
+// down, recomputed here with math/big.
+func TestPow10Mantissas(t *testing.T) {
+	for q := pow10Min; q <= pow10Max; q++ {
+		var m big.Int
+		if q >= 0 {
+			m.Exp(big.NewInt(10), big.NewInt(int64(q)), nil)
+			if n := m.BitLen(); n <= 128 {
+				m.Lsh(&m, uint(128-n))
+			} else {
+				m.Rsh(&m, uint(n-128))
+			}
+		} else {
+			var d big.Int
+			d.Exp(big.NewInt(10), big.NewInt(int64(-q)), nil)
+			m.Lsh(big.NewInt(1), uint(127+d.BitLen()))
+			m.Quo(&m, &d)
+		}
+		var lo, hi big.Int
+		lo.And(&m, new(big.Int).SetUint64(math.MaxUint64))
+		hi.Rsh(&m, 64)
+		if got := pow10Mantissas[q-pow10Min]; m.BitLen() != 128 || got[0] != lo.Uint64() || got[1] != hi.Uint64() {
+			t.Fatalf("1e%d: table %x %x, math/big %x", q, got[1], got[0], &m)
 		}
 	}
 }

@@ -31,7 +31,10 @@ var pow10u = [...]uint64{1, 10, 100, 1000, 10000, 100000, 1000000, 10000000, 100
 // decimal comma read as a point): when the digits (at most 19) make an
 // integer of at most 2^53 and the power of ten is at most 22 in size, both
 // operands are exact and one multiplication or division rounds once,
-// correctly (Clinger's fast path); otherwise strconv.ParseFloat reads s.
+// correctly (Clinger's fast path); otherwise, for at most 19 digits, the
+// Eisel-Lemire method (eiselLemire) rounds the product of the digits and
+// the power's first 128 bits when that decides; otherwise
+// strconv.ParseFloat reads s.
 // Nothing is allocated but for a number of more than 64 bytes with a
 // decimal comma.
 func decimal(s string, mark byte) (float64, bool) {
@@ -112,8 +115,63 @@ func scanDecimal(s string, i, hi int, mark byte) (v float64, end int, ok bool) {
 		}
 		return math.Float64frombits(math.Float64bits(v) | sign), i, true
 	}
+	if sig <= 19 {
+		if v, ok = eiselLemire(mant, exp, sign); ok {
+			return v, i, true
+		}
+	}
 	v, ok = slowDecimal(s[start:i], mark)
 	return v, i, ok
+}
+
+// eiselLemire is mant * 10^exp rounded correctly to a float64 (its sign
+// bit: sign), for mant of at most 19 digits, by the Eisel-Lemire method:
+// the product with the power's first 128 bits tells the rounding except
+// when it is too close to a tie, which, like a power beyond the table or
+// a result that overflows or is subnormal, reports false (the caller then
+// asks strconv.ParseFloat). It is what ParseFloat does after reading the
+// digits, so the value is the same, without reading them again.
+func eiselLemire(mant uint64, exp int, sign uint64) (float64, bool) {
+	if mant == 0 {
+		return math.Float64frombits(sign), true
+	}
+	if exp < pow10Min || exp > pow10Max {
+		return 0, false
+	}
+	pm := &pow10Mantissas[exp-pow10Min]
+	clz := bits.LeadingZeros64(mant)
+	mant <<= uint(clz)
+	// 217706 / 2^16 is log2(10) to the precision that matters here.
+	exp2 := uint64(217706*exp>>16+64+1023) - uint64(clz)
+	hi, lo := bits.Mul64(mant, pm[1])
+	if hi&0x1FF == 0x1FF && lo+mant < mant {
+		// The low bits are all ones: the next 64 bits of the power decide.
+		yHi, yLo := bits.Mul64(mant, pm[0])
+		mHi, mLo := hi, lo+yHi
+		if mLo < lo {
+			mHi++
+		}
+		if mHi&0x1FF == 0x1FF && mLo+1 == 0 && yLo+mant < mant {
+			return 0, false
+		}
+		hi, lo = mHi, mLo
+	}
+	msb := hi >> 63
+	m := hi >> (msb + 9)
+	exp2 -= 1 ^ msb
+	if lo == 0 && hi&0x1FF == 0 && m&3 == 1 {
+		return 0, false // halfway between two floats: not decided here
+	}
+	m += m & 1
+	m >>= 1
+	if m>>53 > 0 {
+		m >>= 1
+		exp2++
+	}
+	if exp2-1 >= 0x7FF-1 {
+		return 0, false // subnormal, zero, infinite
+	}
+	return math.Float64frombits(exp2<<52 | m&(1<<52-1) | sign), true
 }
 
 // word is the eight bytes of s from i, the first in the lowest byte, and
