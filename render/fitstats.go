@@ -119,17 +119,28 @@ func writeGoodnessOfFit(d *doc, or *runner.OutcomeResult) {
 	for _, l := range t.Categories {
 		head = append(head, l+" obs", l+" exp")
 	}
+	obsText := observedText(or)
 	var rows [][]string
 	for g := 0; g < t.Groups; g++ {
 		row := []string{fmt.Sprint(g + 1), numfmt.Fixed(t.Low[g], 3) + "–" + numfmt.Fixed(t.High[g], 3), numfmt.Num(t.Weight[g])}
 		for j := range t.Categories {
-			row = append(row, numfmt.Num(t.Observed[g][j]), numfmt.Fixed(t.Expected[g][j], 1))
+			row = append(row, obsText(t.Observed[g][j]), numfmt.Fixed(t.Expected[g][j], 1))
 		}
 		rows = append(rows, row)
 	}
 	d.captioned("Observed and expected counts by group of predicted score").table(head, rows)
 	d.charts("Chart in report.html: observed against expected share of each category by group of predicted score.", calibrationChart(d, or))
 	writePatternSplit(d, or)
+}
+
+// observedText formats an observed count of a goodness-of-fit table: as
+// it is for one data set, with one decimal on imputed data, where it is the
+// mean of the sets' counts (so that 51 and 54.2 do not sit side by side).
+func observedText(or *runner.OutcomeResult) func(float64) string {
+	if or.GOFPooling != nil {
+		return func(v float64) string { return numfmt.Fixed(v, 1) }
+	}
+	return numfmt.Num
 }
 
 // writePatternSplit writes the Pulkstenis-Robinson tests of the chosen
@@ -177,11 +188,12 @@ func writePatternSplit(d *doc, or *runner.OutcomeResult) {
 	for _, l := range t.Categories {
 		head = append(head, l+" obs", l+" exp")
 	}
+	obsText := observedText(or)
 	var rows [][]string
 	for g := 0; g < t.Groups; g++ {
 		row := []string{t.Pattern[g], t.Half[g], numfmt.Num(t.Weight[g])}
 		for j := range t.Categories {
-			row = append(row, numfmt.Num(t.Observed[g][j]), numfmt.Fixed(t.Expected[g][j], 1))
+			row = append(row, obsText(t.Observed[g][j]), numfmt.Fixed(t.Expected[g][j], 1))
 		}
 		rows = append(rows, row)
 	}

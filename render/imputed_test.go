@@ -4,6 +4,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 
@@ -73,6 +74,19 @@ func TestImputedReport(t *testing.T) {
 		"combined by the D2 rule [",
 		"Li, K.H., Meng, X.L., Raghunathan, T.E. & Rubin, D.B. (1991). Significance levels from repeated p-values with multiply-imputed data.",
 	)
+	// The observed counts of the goodness-of-fit table are means over the
+	// sets: each is written with one decimal, as the expected counts are.
+	gof := md[strings.Index(md, "Observed and expected counts by group of predicted score"):]
+	gof = gof[strings.Index(gof, "| 1 |"):]
+	gof = gof[:strings.Index(gof, "\n\n")]
+	for _, line := range strings.Split(gof, "\n") {
+		cells := strings.Split(strings.Trim(line, "| "), " | ")
+		for c := 3; c < len(cells); c += 2 {
+			if !regexp.MustCompile(`^[0-9]+\.[0-9]$`).MatchString(cells[c]) {
+				t.Errorf("observed count %q of the goodness-of-fit table is not written with one decimal: %s", cells[c], line)
+			}
+		}
+	}
 	if strings.Contains(md, "not computed on imputed data") {
 		t.Error("report.md still says goodness-of-fit tests are not computed on imputed data")
 	}
