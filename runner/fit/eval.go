@@ -604,6 +604,13 @@ func (p *problem) cumulativeKernels(c *coefs, lo, rows, order int, a *acc, s *sc
 	}
 	// hcol is the column of the second derivatives in L_m, L_l (m <= l).
 	hcol := func(m, l int) []float64 { pi := p.pairAt[m*q+l]; return hp[pi*rows : (pi+1)*rows] }
+	// The columns of the end categories' equations.
+	g0, gq := gs[:rows], gs[(q-1)*rows:q*rows]
+	var h0, hq []float64
+	if order >= 2 {
+		h0, hq = hcol(0, 0), hcol(q-1, q-1)
+	}
+	eta0, etaq := eta[:rows], eta[(q-1)*es:(q-1)*es+rows]
 	for i, yi := range y {
 		wi := 1.0
 		if w != nil {
@@ -614,12 +621,12 @@ func (p *problem) cumulativeKernels(c *coefs, lo, rows, order int, a *acc, s *sc
 		}
 		if yi == 0 || yi == q {
 			var t tail
-			m := 0
+			g, h := g0, h0
 			if yi == 0 {
-				t = k.link.lower(tau[0] - eta[i])
+				t = k.link.lower(tau[0] - eta0[i])
 			} else {
-				m = q - 1
-				t = k.link.upper(tau[m] - eta[m*es+i])
+				t = k.link.upper(tau[q-1] - etaq[i])
+				g, h = gq, hq
 			}
 			if math.IsInf(t.v, -1) || math.IsNaN(t.v) {
 				return false
@@ -628,10 +635,10 @@ func (p *problem) cumulativeKernels(c *coefs, lo, rows, order int, a *acc, s *sc
 			a.minLP = math.Min(a.minLP, t.v)
 			// As the general kernel forms them: 0 plus the tail's derivative.
 			if order >= 1 {
-				gs[m*rows+i] = wi * (0 + t.d1)
+				g[i] = wi * (0 + t.d1)
 			}
 			if order >= 2 {
-				hcol(m, m)[i] = wi * (0 + t.d2)
+				h[i] = wi * (0 + t.d2)
 			}
 			continue
 		}

@@ -166,28 +166,19 @@ type logitPoint struct{ z, e, F, Fc float64 }
 
 func newLogitPoint(z float64) logitPoint {
 	e := math.Exp(-math.Abs(z))
-	r := 1 / (1 + e)
-	if z >= 0 {
-		return logitPoint{z, e, r, e * r}
+	p := logitPoint{z: z, e: e, F: 1 / (1 + e)}
+	p.Fc = e * p.F
+	if z < 0 {
+		p.F, p.Fc = p.Fc, p.F
 	}
-	return logitPoint{z, e, e * r, r}
+	return p
 }
 
-// logF is log F(z) = -log(1 + e^-z).
-func (p logitPoint) logF() float64 {
-	if p.z >= 0 {
-		return -math.Log1p(p.e)
-	}
-	return p.z - math.Log1p(p.e)
-}
+// logF is log F(z) = -log(1 + e^-z) = -max(-z, 0) - log1p(e^-|z|).
+func (p logitPoint) logF() float64 { return -math.Log1p(p.e) - max(-p.z, 0) }
 
-// logFc is log(1 - F(z)) = -log(1 + e^z).
-func (p logitPoint) logFc() float64 {
-	if p.z <= 0 {
-		return -math.Log1p(p.e)
-	}
-	return -p.z - math.Log1p(p.e)
-}
+// logFc is log(1 - F(z)) = -log(1 + e^z) = -max(z, 0) - log1p(e^-|z|).
+func (p logitPoint) logFc() float64 { return -math.Log1p(p.e) - max(p.z, 0) }
 
 // logDensity returns log f(z) = log F(z) + log(1 - F(z)) = -|z| -
 // 2 log(1 + e^-|z|) and f'(z)/f(z) = 1 - 2 F(z).

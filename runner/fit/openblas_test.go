@@ -43,18 +43,30 @@ func TestOpenBLASSameSums(t *testing.T) {
 // sqrt(w) and by w.
 func scaledCols(u, w []float64, k, n int) (su, wu []float64) {
 	su, wu = make([]float64, k*n), make([]float64, k*n)
-	scaleCols(su, wu, u, w, k, n)
+	scaleCols(su, wu, make([]float64, n), u, w, k, n)
 	return su, wu
 }
 
-func scaleCols(su, wu, u, w []float64, k, n int) {
+// scaleCols fills su (when not nil) with the columns of u times sqrt(w)
+// (sw: scratch of n) and wu (when not nil) with them times w.
+func scaleCols(su, wu, sw, u, w []float64, k, n int) {
+	if su != nil {
+		for i, wi := range w[:n] {
+			sw[i] = math.Sqrt(wi)
+		}
+	}
 	for j := 0; j < k; j++ {
-		for i := 0; i < n; i++ {
-			if su != nil {
-				su[j*n+i] = math.Sqrt(w[i]) * u[j*n+i]
+		uj := u[j*n : (j+1)*n]
+		if su != nil {
+			dst := su[j*n : (j+1)*n]
+			for i, x := range uj {
+				dst[i] = sw[i] * x
 			}
-			if wu != nil {
-				wu[j*n+i] = w[i] * u[j*n+i]
+		}
+		if wu != nil {
+			dst := wu[j*n : (j+1)*n]
+			for i, x := range uj {
+				dst[i] = w[i] * x
 			}
 		}
 	}
@@ -63,10 +75,10 @@ func scaleCols(su, wu, u, w []float64, k, n int) {
 // BenchmarkCrossOpenBLAS times the weighted cross-product of one block of
 // 4096 rows and K columns (column-major, the engine's layout) by symCross
 // against OpenBLAS on one thread: cblas_dsyrk on the columns scaled by
-// sqrt(w) (possible only for weights of one sign; the scaling included and
-// also timed alone) and cblas_dgemm of U' and WU (any weights; forming WU
-// included). `go test -tags openblas -run '^$' -bench CrossOpenBLAS ./runner/fit/`
-// with libopenblas-dev installed.
+// sqrt(w) (possible only for weights of one sign; the scaling included, and
+// dsyrk also timed alone) and cblas_dgemm of U' and WU (any weights;
+// forming WU included); CPU ns per block (cpu-ns/op). `go test -tags openblas -run '^$' -bench
+// CrossOpenBLAS ./runner/fit/` with libopenblas-dev installed.
 func BenchmarkCrossOpenBLAS(b *testing.B) {
 	openblasThreads(1)
 	const n = blockRows
@@ -78,28 +90,26 @@ func BenchmarkCrossOpenBLAS(b *testing.B) {
 			w[i] = math.Abs(w[i])
 		}
 		su, wu := scaledCols(u, w, K, n)
+		sw := make([]float64, n)
 		dst := make([]float64, K*K)
-		b.Run("symCross/K="+itoa(K), func(b *testing.B) {
-			for i := 0; i < b.N; i++ {
-				symCross(dst, K, u, K, n, w)
-			}
+		run := func(name string, f func()) {
+			b.Run(name+"/K="+itoa(K), func(b *testing.B) {
+				cpu0 := processCPU()
+				for i := 0; i < b.N; i++ {
+					f()
+				}
+				b.ReportMetric(float64(processCPU()-cpu0)/float64(b.N), "cpu-ns/op")
+			})
+		}
+		run("symCross", func() { symCross(dst, K, u, K, n, w) })
+		run("openblas-dsyrk+scaling", func() {
+			scaleCols(su, nil, sw, u, w, K, n)
+			openblasSyrk(dst, su, K, n)
 		})
-		b.Run("openblas-dsyrk+scaling/K="+itoa(K), func(b *testing.B) {
-			for i := 0; i < b.N; i++ {
-				scaleCols(su, nil, u, w, K, n)
-				openblasSyrk(dst, su, K, n)
-			}
-		})
-		b.Run("openblas-dsyrk/K="+itoa(K), func(b *testing.B) {
-			for i := 0; i < b.N; i++ {
-				openblasSyrk(dst, su, K, n)
-			}
-		})
-		b.Run("openblas-dgemm+scaling/K="+itoa(K), func(b *testing.B) {
-			for i := 0; i < b.N; i++ {
-				scaleCols(nil, wu, u, w, K, n)
-				openblasGemm(dst, u, wu, K, n)
-			}
+		run("openblas-dsyrk", func() { openblasSyrk(dst, su, K, n) })
+		run("openblas-dgemm+scaling", func() {
+			scaleCols(nil, wu, sw, u, w, K, n)
+			openblasGemm(dst, u, wu, K, n)
 		})
 	}
 }
