@@ -240,7 +240,7 @@ func ingest(w io.Writer, n, repeats int) {
 		return
 	}
 	xBytes := float64(n * K * 8)
-	fmt.Fprintf(w, "\n## Reading data\n\nn = %d rows, K = %d predictors (half 0/1), two categories; each reading in a fresh process (file in the page cache), %d times, the readers taking turns (\"as a plan run\": the file's bytes read once, checked for UTF-8 and hashed (SHA-256, for run.json), then parsed). MB = 10^6 bytes; target %d MB/s. \"CPU s\": user and system time of the best reading (the sampling of the heap included). \"Peak heap / X\" and \"peak RSS / X\": the largest heap in use while reading, and the process's peak resident set, over the design matrix (n K 8 bytes = %.0f MB).\n\n", n, K, repeats, ingestTarget, xBytes/1e6)
+	fmt.Fprintf(w, "\n## Reading data\n\nn = %d rows, K = %d predictors (half 0/1), two categories; each reading in a fresh process (file in the page cache), %d times, the readers taking turns (\"as a plan run\": the file's bytes read once, checked (a CSV file for UTF-8) and hashed (SHA-256, for run.json), then parsed). MB = 10^6 bytes; target %d MB/s. \"CPU s\": user and system time of the best reading (the sampling of the heap included). \"Peak heap / X\" and \"peak RSS / X\": the largest heap in use while reading, and the process's peak resident set, over the design matrix (n K 8 bytes = %.0f MB).\n\n", n, K, repeats, ingestTarget, xBytes/1e6)
 	fmt.Fprintln(w, "| file | MB | reader | best s | median s | CPU s | MB/s (best) | ratio to target | peak heap / X | peak RSS / X |\n|---|---|---|---|---|---|---|---|---|---|")
 	for _, f := range files {
 		fi, err := os.Stat(f.path)
@@ -297,7 +297,7 @@ func ingest(w io.Writer, n, repeats int) {
 				med = (secs[len(secs)/2-1] + secs[len(secs)/2]) / 2
 			}
 			name := map[string]string{"stream": "record at a time (ReadStream)", "load": "chunked, parallel (Load)",
-				"pin": "as a plan run: Pin (read, UTF-8 check, SHA-256) + Load"}[m]
+				"pin": "as a plan run: Pin (read, checks, SHA-256) + Load"}[m]
 			fmt.Fprintf(w, "| %s | %.1f | %s | %.3f | %.3f | %.3f | %.0f | %.2f | %.2f | %.2f |\n",
 				f.what, mb, name, best, med, cpu, mb/best, mb/best/ingestTarget, float64(heap)/xBytes, float64(rss)/xBytes)
 		}
