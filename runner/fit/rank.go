@@ -219,9 +219,7 @@ func (d *Data) columnSums(workers int, mean []float64, tot float64, base *colSum
 			}
 			if mean == nil {
 				if base == nil {
-					cols := u[:rows*w0]
-					d.columns(lo, rows, cols)
-					c.addSums(cols, rows, lo, w)
+					c.addSums(d.X[lo*w0:(lo+rows)*w0], rows, lo, w)
 				}
 				if G > 0 {
 					c.addGroups(d.ind.group[lo:lo+rows], lo, w, w0)
@@ -352,10 +350,10 @@ func (c *colSums) indicatorCross(mean []float64, W float64, w0, G int) {
 	}
 }
 
-// addSums adds a block's rows (first row lo; the columns of X, cols,
-// column-major) to the weights' total, the weighted sums and the largest
-// values.
-func (c *colSums) addSums(cols []float64, rows, lo int, w []float64) {
+// addSums adds a block's rows (first row lo; x: its rows of X, row-major)
+// to the weights' total, the weighted sums and the largest values. Each
+// column's sum takes the rows in order, as a loop down the column does.
+func (c *colSums) addSums(x []float64, rows, lo int, w []float64) {
 	for i := 0; i < rows; i++ {
 		if w == nil {
 			c.tot++
@@ -363,21 +361,23 @@ func (c *colSums) addSums(cols []float64, rows, lo int, w []float64) {
 			c.tot += w[i]
 		}
 	}
-	for k := 0; k < len(cols)/max(rows, 1); k++ {
-		v := cols[k*rows : (k+1)*rows]
-		s := 0.0
-		for i, x := range v {
+	w0 := len(x) / max(rows, 1)
+	s := make([]float64, w0)
+	mx, at := c.maxAbs[:w0], c.at[:w0]
+	for i := 0; i < rows; i++ {
+		row := x[i*w0 : (i+1)*w0]
+		for k, v := range row {
 			if w == nil {
-				s += x
+				s[k] += v
 			} else {
-				s += w[i] * x
+				s[k] += w[i] * v
 			}
-			if a := math.Abs(x); a > c.maxAbs[k] {
-				c.maxAbs[k], c.at[k] = a, lo+i
+			if a := math.Abs(v); a > mx[k] {
+				mx[k], at[k] = a, lo+i
 			}
 		}
-		c.sum[k] += s
 	}
+	addTo(c.sum[:w0], s)
 }
 
 // The range of predictor magnitudes (largest absolute value) a fit takes.
