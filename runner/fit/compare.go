@@ -258,17 +258,16 @@ func (k *kernel) adjacent(L []float64, c int, g, h []float64) (float64, bool) {
 	if k.link == Logit && q < 16 {
 		return adjacentLogit(L, c, g, h)
 	}
-	// psi, its two derivatives, s (q+1), C, U (q) and P (q+1): one buffer.
-	var buf [7*16 + 2]float64
+	// psi, its two derivatives, s and P (q+1 each): one buffer.
+	var buf [5*16 + 2]float64
 	var b []float64
 	if q <= 16 {
-		b = buf[:7*q+2]
+		b = buf[:5*q+2]
 	} else {
-		b = make([]float64, 7*q+2)
+		b = make([]float64, 5*q+2)
 	}
-	ps, dps, d2ps, s := b[:q], b[q:2*q], b[2*q:3*q], b[3*q:4*q+1]
-	C, U, P := b[4*q+1:5*q+1], b[5*q+1:6*q+1], b[6*q+1:]
-	_ = P[q]
+	ps, dps, d2ps := b[:q], b[q:2*q], b[2*q:3*q]
+	s, P := b[3*q:4*q+1], b[4*q+1:5*q+2]
 	for m := 0; m < q; m++ {
 		if k.link == Logit {
 			ps[m], dps[m], d2ps[m] = L[m], 1, 0
@@ -280,54 +279,9 @@ func (k *kernel) adjacent(L []float64, c int, g, h []float64) (float64, bool) {
 		// never meet Inf - Inf.
 		ps[m], dps[m], d2ps[m] = clampHuge(lo.v-up.v), clampHuge(lo.d1-up.d1), clampHuge(lo.d2-up.d2)
 	}
-	s[q] = 0
-	top := q
-	for j := q - 1; j >= 0; j-- {
-		s[j] = s[j+1] + ps[j]
-		if s[j] > s[top] {
-			top = j
-		}
-	}
-	// Re-sum relative to the largest term so that huge psi values do not
-	// cost digits: t_j = s_j - s_top from the psi between them.
-	s[top] = 0
-	for j := top - 1; j >= 0; j-- {
-		s[j] = s[j+1] + ps[j]
-	}
-	acc0 := 0.0
-	for j := top + 1; j <= q; j++ {
-		acc0 -= ps[j-1]
-		s[j] = acc0
-	}
-	// e^(s_j) (at most 1: s_top = 0), kept for the probabilities: one
-	// exponential per category.
-	sum := 0.0
-	for j := range P {
-		P[j] = math.Exp(s[j])
-		sum += P[j]
-	}
-	lse := math.Log(sum)
-	lp := s[c] - lse
-	if math.IsNaN(lp) || math.IsInf(lp, 0) {
-		return math.Inf(-1), false
-	}
-	if g == nil && h == nil {
-		return lp, true
-	}
-	// P_j = e^(s_j) / sum_k e^(s_k): the sum is at least 1. C_m = P(y <= m),
-	// U_m = P(y > m).
-	for j := range P {
-		P[j] /= sum
-	}
-	acc := 0.0
-	for m := 0; m < q; m++ {
-		acc += P[m]
-		C[m] = acc
-	}
-	acc = 0
-	for m := q - 1; m >= 0; m-- {
-		acc += P[m+1]
-		U[m] = acc
+	lp, ok, C, U := adjacentProbs(ps, c, s, P, g != nil || h != nil)
+	if !ok || (g == nil && h == nil) {
+		return lp, ok
 	}
 	for m := 0; m < q; m++ {
 		var dpsi float64
@@ -353,48 +307,51 @@ func (k *kernel) adjacent(L []float64, c int, g, h []float64) (float64, bool) {
 	return lp, true
 }
 
-// adjacentLogit is adjacent under the logit link, psi_m = L_m (first
-// derivative 1, second 0), for fewer than 16 equations: the same sums in
-// the same order, with two buffers on the stack (Go clears them on every
-// call, so they are kept small): s_j then C_m in one, e^(s_j), P_j, then
-// U_m (at m + 1) in the other.
-func adjacentLogit(L []float64, c int, g, h []float64) (float64, bool) {
-	q := len(L)
-	var sbuf, pbuf [16]float64
-	s, P := sbuf[:q+1], pbuf[:q+1]
+// adjacentProbs returns log P(y = c) of the adjacent comparison from psi
+// (q), using s and P (q+1 each) as buffers; with derivs, also
+// C_m = P(y <= m) and U_m = P(y > m) (q each, held in s and P). The
+// category scores s_j = sum_{m>=j} psi_m are summed again from the largest
+// so that huge psi values do not cost digits (t_j = s_j - s_top from the
+// psi between them); then one exponential per category (e^(t_j) at most
+// 1, their sum at least 1) and one logarithm. ok is false when log P is
+// not finite.
+func adjacentProbs(ps []float64, c int, s, P []float64, derivs bool) (lp float64, ok bool, C, U []float64) {
+	q := len(ps)
 	s[q] = 0
 	top := q
 	for j := q - 1; j >= 0; j-- {
-		s[j] = s[j+1] + L[j]
+		s[j] = s[j+1] + ps[j]
 		if s[j] > s[top] {
 			top = j
 		}
 	}
 	s[top] = 0
 	for j := top - 1; j >= 0; j-- {
-		s[j] = s[j+1] + L[j]
+		s[j] = s[j+1] + ps[j]
 	}
 	acc0 := 0.0
 	for j := top + 1; j <= q; j++ {
-		acc0 -= L[j-1]
+		acc0 -= ps[j-1]
 		s[j] = acc0
 	}
 	sum := 0.0
-	for j := range P {
+	for j := range P[:q+1] {
 		P[j] = math.Exp(s[j])
 		sum += P[j]
 	}
-	lp := s[c] - math.Log(sum)
+	lp = s[c] - math.Log(sum)
 	if math.IsNaN(lp) || math.IsInf(lp, 0) {
-		return math.Inf(-1), false
+		return math.Inf(-1), false, nil, nil
 	}
-	if g == nil && h == nil {
-		return lp, true
+	if !derivs {
+		return lp, true, nil, nil
 	}
-	for j := range P {
+	// P_j = e^(t_j) / sum_k e^(t_k); C_m (in s) and U_m (in P, at m + 1)
+	// summed from the side of each.
+	for j := range P[:q+1] {
 		P[j] /= sum
 	}
-	C := s[:q]
+	C = s[:q]
 	acc := 0.0
 	for m := 0; m < q; m++ {
 		acc += P[m]
@@ -403,9 +360,23 @@ func adjacentLogit(L []float64, c int, g, h []float64) (float64, bool) {
 	acc = 0
 	for m := q - 1; m >= 0; m-- {
 		acc += P[m+1]
-		P[m+1] = acc // U_m
+		P[m+1] = acc
 	}
-	U := P[1:]
+	return lp, true, C, P[1 : q+1]
+}
+
+// adjacentLogit is adjacent under the logit link, psi_m = L_m (first
+// derivative 1, second 0), for fewer than 16 equations: the same sums in
+// the same order (adjacentProbs), with two small buffers on the stack (Go
+// clears them on every call).
+func adjacentLogit(L []float64, c int, g, h []float64) (float64, bool) {
+	q := len(L)
+	var sbuf, pbuf [16]float64
+	s, P := sbuf[:q+1], pbuf[:q+1]
+	lp, ok, C, U := adjacentProbs(L, c, s, P, g != nil || h != nil)
+	if !ok || (g == nil && h == nil) {
+		return lp, ok
+	}
 	for m := 0; m < q; m++ {
 		if g != nil {
 			if m >= c {

@@ -2,21 +2,26 @@ package fit
 
 import "testing"
 
+// speedTargetModels are the parallel-effects models of the speed
+// targets (logit link, K = 10): a binary outcome and the three comparisons
+// with J = 5.
+var speedTargetModels = []struct {
+	name string
+	J    int
+	c    Comparison
+}{
+	{"binary", 2, Cumulative},
+	{"cumulative", 5, Cumulative},
+	{"stage", 5, Stage},
+	{"adjacent", 5, Adjacent},
+}
+
 // BenchmarkBlockKernels times the row kernels of one block of 4096 rows
 // (log-probabilities with first and second derivatives, as a Newton
 // iteration asks) for the parallel-effects models of the speed targets,
 // logit link, at the marginal cutpoints: CPU ns per block (cpu-ns/op).
 func BenchmarkBlockKernels(b *testing.B) {
-	for _, tc := range []struct {
-		name string
-		J    int
-		c    Comparison
-	}{
-		{"binary", 2, Cumulative},
-		{"cumulative", 5, Cumulative},
-		{"stage", 5, Stage},
-		{"adjacent", 5, Adjacent},
-	} {
+	for _, tc := range speedTargetModels {
 		d := speedData(blockRows, 10, tc.J)
 		m := speedModel(tc.c, Parallel, 10)
 		ly, err := newLayout(m, d.J, d.Predictors)
@@ -52,16 +57,7 @@ func BenchmarkBlockKernels(b *testing.B) {
 // and the reference X'WX; "ratio" is iteration / (X'WX + kernels), the
 // speed target's ratio.
 func BenchmarkIterationParts(b *testing.B) {
-	for _, tc := range []struct {
-		name string
-		J    int
-		c    Comparison
-	}{
-		{"binary", 2, Cumulative},
-		{"cumulative", 5, Cumulative},
-		{"stage", 5, Stage},
-		{"adjacent", 5, Adjacent},
-	} {
+	for _, tc := range speedTargetModels {
 		d := speedData(200000, 10, tc.J)
 		m := speedModel(tc.c, Parallel, 10)
 		b.Run(tc.name, func(b *testing.B) {
