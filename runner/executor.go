@@ -10,18 +10,18 @@ import (
 // elsewhere: the data file (by content hash), how to read it, the model and
 // the fit options.
 type Job struct {
-	Outcome     string // for messages
-	Index       int    // position in the outcome's list of fits
-	ID          string
-	Spec        Spec
-	DataFile    string // name of the data file, for messages
-	DataHash    string // hex SHA-256 of the data file bytes
-	DataOptions data.Options
+	Outcome     string       `json:"outcome"` // for messages
+	Index       int          `json:"index"`   // position in the outcome's list of fits
+	ID          string       `json:"id"`
+	Spec        Spec         `json:"spec"`
+	DataFile    string       `json:"data_file"` // name of the data file, for messages
+	DataHash    string       `json:"data_hash"` // hex SHA-256 of the data file bytes
+	DataOptions data.Options `json:"data_options"`
 	// Design, when set, turns the columns read into the design columns
 	// with the constants frozen where the design was built (the data
 	// file's rows, or imputed set 1 of imputed data).
-	Design     *design.Frozen `json:",omitempty"`
-	FitOptions fit.Options
+	Design     *design.Frozen `json:"design,omitempty"`
+	FitOptions fit.Options    `json:"fit_options"`
 }
 
 // Executor fits jobs somewhere (for example on remote workers) and returns

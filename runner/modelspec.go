@@ -11,19 +11,19 @@ import (
 // Spec says which model to build: the comparison, the stage direction, the
 // link, and the effect structure of each predictor.
 type Spec struct {
-	Approach    fit.Comparison
-	Backward    bool // stage direction
-	Link        fit.Link
-	Predictors  []string // all predictors, in order
-	Nonparallel []string // predictors with free slopes
-	Groups      []Group  // constrained predictors by group
+	Approach    fit.Comparison `json:"approach"`
+	Backward    bool           `json:"backward"` // stage direction
+	Link        fit.Link       `json:"link"`
+	Predictors  []string       `json:"predictors"`  // all predictors, in order
+	Nonparallel []string       `json:"nonparallel"` // predictors with free slopes
+	Groups      []Group        `json:"groups"`      // constrained predictors by group
 }
 
 // Group is one constraint group: predictors whose slopes share a common
 // factor phi.
 type Group struct {
-	Name       string
-	Predictors []string
+	Name       string   `json:"name"`
+	Predictors []string `json:"predictors"`
 }
 
 // EffectsSpec builds the Spec of a typology cell: effect structure

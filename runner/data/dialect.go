@@ -11,13 +11,13 @@ import (
 // between fields and the decimal mark. The zero value is comma-separated
 // with a decimal point.
 type Dialect struct {
-	Delimiter    rune // ',' (0 means ','), ';' or '\t'
-	DecimalComma bool // numbers are written 1,5 rather than 1.5
+	Delimiter    rune `json:"delimiter"`     // ',' (0 means ','), ';' or '\t'
+	DecimalComma bool `json:"decimal_comma"` // numbers are written 1,5 rather than 1.5
 	// Sheet names the worksheet of an .xlsx workbook ("" = the first);
 	// HeaderRow is the sheet row holding the column names (0 or 1 = the
 	// first row; rows above it, such as a title, are skipped).
-	Sheet     string
-	HeaderRow int
+	Sheet     string `json:"sheet"`
+	HeaderRow int    `json:"header_row"`
 }
 
 // Delimiters maps the delimiter words of plans and flags to characters.

@@ -7,46 +7,46 @@ import (
 
 // Options says which columns of the file to use and how.
 type Options struct {
-	Outcome string // outcome column (required)
+	Outcome string `json:"outcome"` // outcome column (required)
 	// Categories gives the category order as labels, lowest first. If empty,
 	// the outcome must hold integer codes and the categories are the distinct
 	// codes observed, sorted numerically, labelled by their decimal text.
-	Categories []string
+	Categories []string `json:"categories"`
 	// Codes, when Categories is empty, are the outcome's integer codes in
 	// category order (each labelled by its decimal text), as the whole of
 	// data held in parts has them: a part is then coded as the whole even
 	// when it lacks a category, and a code is read as a number (+2 and 02
 	// are 2). A code not listed is an error naming its row. Empty: the
 	// codes seen.
-	Codes      []int64
-	Predictors []string // predictor columns, in the order wanted
+	Codes      []int64  `json:"codes"`
+	Predictors []string `json:"predictors"` // predictor columns, in the order wanted
 	// PredictorLevels declares categorical predictor columns: the cell
 	// text must be one of the listed levels and is stored in X as the
 	// level's index (0-based). A level no kept row has is listed in
 	// Dataset.UnobservedLevels.
-	PredictorLevels map[string][]string
+	PredictorLevels map[string][]string `json:"predictor_levels"`
 	// Keep lists conditions a row must meet to be used; the others are
 	// dropped and counted, like rows with missing values.
-	Keep    []Condition
-	Weights string // optional column of positive weights ("" = none)
-	Offset  string // optional numeric offset column
-	Cluster string // optional cluster id column (kept as strings)
+	Keep    []Condition `json:"keep"`
+	Weights string      `json:"weights"` // optional column of positive weights ("" = none)
+	Offset  string      `json:"offset"`  // optional numeric offset column
+	Cluster string      `json:"cluster"` // optional cluster id column (kept as strings)
 	// Refuse makes a missing value in a used column an error instead of a
 	// reason to drop the row.
-	Refuse bool
+	Refuse bool `json:"refuse"`
 	// KeepIncomplete keeps rows whose missing values are all in the
 	// outcome or predictor columns, for imputation: a missing predictor is
 	// NaN in X, a missing outcome -1 in Y (Dataset.Incomplete counts such
 	// rows). Rows missing a weight, offset or cluster are dropped as usual.
-	KeepIncomplete bool
+	KeepIncomplete bool `json:"keep_incomplete"`
 	// MissingTokens are the cell values (after trimming spaces) that mean
 	// missing; nil means DefaultMissing.
-	MissingTokens []string
+	MissingTokens []string `json:"missing_tokens"`
 	// ColumnMissing gives columns their own missing-value codes (such as
 	// "-9" in one column only), besides MissingTokens.
-	ColumnMissing map[string][]string
+	ColumnMissing map[string][]string `json:"column_missing"`
 	// Dialect is the file's delimiter and decimal mark (zero: comma, point).
-	Dialect Dialect
+	Dialect Dialect `json:"dialect"`
 }
 
 // DefaultMissing are the missing-value tokens used when

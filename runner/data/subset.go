@@ -12,11 +12,11 @@ import (
 // "not_in") one of the texts in Values. A missing cell fails the
 // condition.
 type Condition struct {
-	Column string
-	Op     string
-	Number float64
-	Values []string
-	Key    string // where the plan states it, for reports
+	Column string   `json:"column"`
+	Op     string   `json:"op"`
+	Number float64  `json:"number"`
+	Values []string `json:"values"`
+	Key    string   `json:"key"` // where the plan states it, for reports
 }
 
 // String renders the condition for reports, e.g. `age >= 18` or

@@ -6,9 +6,9 @@ import (
 	"encoding/json"
 	"math/rand/v2"
 	"reflect"
-	"regexp"
-	"slices"
 	"testing"
+
+	"ordplan/internal/jsonkeys"
 )
 
 // A design made again from its frozen constants, after a JSON and a gob
@@ -52,8 +52,8 @@ func TestFrozenDesignRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if bad := notSnakeCase(t, js); len(bad) > 0 {
-		t.Errorf("frozen design JSON keys not in snake_case: %v\n%s", bad, js)
+	if bad, err := jsonkeys.NotSnakeCase(js); err != nil || len(bad) > 0 {
+		t.Errorf("frozen design JSON keys not in snake_case: %v %v\n%s", bad, err, js)
 	}
 	var viaJSON Frozen
 	if err := json.Unmarshal(js, &viaJSON); err != nil {
@@ -88,36 +88,4 @@ func TestFrozenDesignRoundTrip(t *testing.T) {
 	if len(d.Notes) == 0 {
 		t.Error("the dropped level left no note")
 	}
-}
-
-// notSnakeCase lists the object keys of the JSON document js that are not
-// lower-case words joined by '_' (the convention of every JSON the program
-// writes), sorted.
-func notSnakeCase(t *testing.T, js []byte) []string {
-	t.Helper()
-	var v any
-	if err := json.Unmarshal(js, &v); err != nil {
-		t.Fatal(err)
-	}
-	snake := regexp.MustCompile(`^[a-z][a-z0-9]*(_[a-z0-9]+)*$`)
-	var bad []string
-	var walk func(any)
-	walk = func(v any) {
-		switch x := v.(type) {
-		case map[string]any:
-			for k, e := range x {
-				if !snake.MatchString(k) {
-					bad = append(bad, k)
-				}
-				walk(e)
-			}
-		case []any:
-			for _, e := range x {
-				walk(e)
-			}
-		}
-	}
-	walk(v)
-	slices.Sort(bad)
-	return slices.Compact(bad)
 }

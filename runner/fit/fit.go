@@ -83,25 +83,25 @@ func (d *Data) N() int { return len(d.Y) }
 
 // Options tunes a fit. The zero value is the default.
 type Options struct {
-	Covariance Covariance // Observed (default) or Expected
-	MaxIter    int        // Newton iterations (default 200)
-	Workers    int        // goroutines over row blocks (default GOMAXPROCS)
-	Start      []float64  // starting values in parameter order (optional)
-	Scoring    bool       // Fisher scoring instead of Newton-Raphson
+	Covariance Covariance `json:"covariance"` // Observed (default) or Expected
+	MaxIter    int        `json:"max_iter"`   // Newton iterations (default 200)
+	Workers    int        `json:"workers"`    // goroutines over row blocks (default GOMAXPROCS)
+	Start      []float64  `json:"start"`      // starting values in parameter order (optional)
+	Scoring    bool       `json:"scoring"`    // Fisher scoring instead of Newton-Raphson
 	// RandomStarts is the number of random starts of a model with
 	// constrained predictors: 0 means 5, a negative number none.
-	RandomStarts int
+	RandomStarts int `json:"random_starts"`
 	// ScreenAbove: with more rows than this, a model with constrained
 	// predictors runs on the data only the user's start and the first
 	// deterministic one, and screens the others on the quadratic
 	// approximation around the unconstrained partial fit first. 0 means
 	// 5000; a negative number screens at any size.
-	ScreenAbove int
+	ScreenAbove int `json:"screen_above"`
 	// SubsampleAbove: a fit on at least this many rows (after merging
 	// repeated rows) without a Start begins its full-data Newton
 	// iterations at the maximum on a fixed subsample (subsample.go).
 	// 0 means 200000; a negative number never.
-	SubsampleAbove int
+	SubsampleAbove int `json:"subsample_above"`
 	// Sandwich, when set, replaces the covariance of every usable fit that
 	// Stepwise makes before it tests (robust or cluster-robust errors).
 	// Fit itself ignores it.

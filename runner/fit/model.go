@@ -28,16 +28,16 @@ func (e Effect) String() string {
 
 // Model describes one model of the typology, independent of the data.
 type Model struct {
-	Comparison Comparison
-	Backward   bool // stage comparison only: P(y <= m | y <= m+1)
-	Link       Link
+	Comparison Comparison `json:"comparison"`
+	Backward   bool       `json:"backward"` // stage comparison only: P(y <= m | y <= m+1)
+	Link       Link       `json:"link"`
 	// Effects gives the structure of each predictor, in predictor order.
-	Effects []Effect
+	Effects []Effect `json:"effects"`
 	// Groups gives, for each constrained predictor, the index of its
 	// constraint group in GroupNames (ignored for other predictors). With a
 	// nil Groups every constrained predictor is in group 0.
-	Groups     []int
-	GroupNames []string
+	Groups     []int    `json:"groups"`
+	GroupNames []string `json:"group_names"`
 }
 
 // Structure is the effect structure of a whole model: a column of the
