@@ -90,8 +90,13 @@ type problem struct {
 	// parInd is the number of indicator columns (design.group) that end
 	// the parallel columns and are summed by group rather than held in the
 	// block's columns (0: none, or they are held like any column).
-	parInd  int
-	prof    *profile  // optional timing of the cross-products
+	parInd int
+	prof   *profile // optional timing of the cross-products
+	// first: the sums of an evaluation at one point, made otherwise
+	// (firstSums); last: the last evaluation to second order (lastSums).
+	first   *firstSums
+	lastMu  sync.Mutex
+	last    *lastSums
 	scratch sync.Pool // *scratch, reused across evaluations
 }
 
@@ -670,18 +675,31 @@ func (p *problem) blockScore(lo, rows int, a *acc, s *scratch) {
 	if kp == 0 {
 		return
 	}
-	sg := s.wt[:rows]
-	copy(sg, s.gs[:rows])
-	for m := 1; m < q; m++ {
-		addTo(sg, s.gs[m*rows:(m+1)*rows])
-	}
+	sg := p.equationSums(rows, s)
 	kp0 := kp - p.parInd
 	fullCross(a.Vp, kp, sg, 1, s.xp, kp0, rows, nil)
 	if p.parInd > 0 {
-		for i, g := range p.d.group[lo : lo+rows] {
-			if g > 0 {
-				a.Vp[kp0+g-1] += sg[i]
-			}
+		p.indicatorScore(lo, rows, kp0, sg, a)
+	}
+}
+
+// equationSums is the sum over the equations of each row's weighted first
+// derivatives (in s.wt).
+func (p *problem) equationSums(rows int, s *scratch) []float64 {
+	sg := s.wt[:rows]
+	copy(sg, s.gs[:rows])
+	for m := 1; m < p.q; m++ {
+		addTo(sg, s.gs[m*rows:(m+1)*rows])
+	}
+	return sg
+}
+
+// indicatorScore adds the score pieces of the indicator columns: each
+// row's sg to its group's.
+func (p *problem) indicatorScore(lo, rows, kp0 int, sg []float64, a *acc) {
+	for i, g := range p.d.group[lo : lo+rows] {
+		if g > 0 {
+			a.Vp[kp0+g-1] += sg[i]
 		}
 	}
 }
@@ -703,6 +721,22 @@ func (p *problem) blockInformation(lo, rows int, a *acc, s *scratch) {
 	if kp == 0 {
 		return
 	}
+	wt, ru := p.rowWeights(rows, s)
+	kp0 := kp - p.parInd
+	fullCross(a.R, q*kf, s.xp, kp0, ru, q*kf, rows, nil)
+	symCross(a.T, kp, s.xp, kp0, rows, wt)
+	if p.parInd > 0 {
+		p.indicatorInformation(lo, rows, kp0, ru, a, s)
+	}
+}
+
+// rowWeights forms the weights of the parallel columns' information
+// pieces: wt (in s.wt), each row's sum_ml H_ml, and ru, each row's sum_m
+// H_ml for every equation l times the per-equation columns (rl itself
+// when the constant is the only one).
+func (p *problem) rowWeights(rows int, s *scratch) (wt, ru []float64) {
+	q, kf := p.q, len(p.freeCols)
+	hpair := func(pi int) []float64 { return s.hp[pi*rows : (pi+1)*rows] }
 	// sum_m H_ml for every l, from the pairs (H is symmetric), in the
 	// order of m; then their sum over l, the weights of the parallel block.
 	rl := s.rl[:q*rows]
@@ -714,14 +748,14 @@ func (p *problem) blockInformation(lo, rows int, a *acc, s *scratch) {
 			addTo(rl[pr[1]*rows:(pr[1]+1)*rows], h)
 		}
 	}
-	wt := s.wt[:rows]
+	wt = s.wt[:rows]
 	copy(wt, rl[:rows])
 	for l := 1; l < q; l++ {
 		addTo(wt, rl[l*rows:(l+1)*rows])
 	}
 	// The per-equation columns times sum_m H_ml; the constant column alone
 	// (parallel effects) is rl itself.
-	ru := rl
+	ru = rl
 	if kf > 1 {
 		ru = s.ru
 		for l := 0; l < q; l++ {
@@ -735,12 +769,7 @@ func (p *problem) blockInformation(lo, rows int, a *acc, s *scratch) {
 			}
 		}
 	}
-	kp0 := kp - p.parInd
-	fullCross(a.R, q*kf, s.xp, kp0, ru, q*kf, rows, nil)
-	symCross(a.T, kp, s.xp, kp0, rows, wt)
-	if p.parInd > 0 {
-		p.indicatorInformation(lo, rows, kp0, ru, a, s)
-	}
+	return wt, ru
 }
 
 // indicatorInformation adds the information pieces of the indicator

@@ -174,6 +174,10 @@ type Result struct {
 	// of the same rows with indicator columns (LipsitzTest) starts from
 	// (nil for fits made elsewhere, such as on a queue's workers).
 	rank *rankSums
+	// last: the sums of the fit's last evaluation to second order, which
+	// the same refit's first evaluation takes its X parts from (nil when
+	// unknown).
+	last *lastSums
 }
 
 // Separation describes a fit with no finite maximum.
@@ -214,12 +218,18 @@ func Fit(d *Data, m Model, opt Options) (*Result, error) {
 // fitFrom is Fit, its rank check taking the sums of X's columns from base
 // when base was formed on the rows of d.
 func fitFrom(d *Data, m Model, opt Options, base *rankSums) (*Result, error) {
+	return fitFromWith(d, m, opt, base, nil)
+}
+
+// fitFromWith is fitFrom, with the sums of the first evaluation at
+// first's point made from the fit it extends (nil: evaluated).
+func fitFromWith(d *Data, m Model, opt Options, base *rankSums, first *firstSums) (*Result, error) {
 	// Sums of a rank check come from a fit, after its data were validated:
 	// X's values were found finite then.
 	if err := d.validateRows(base.of(d)); err != nil {
 		return nil, err
 	}
-	return fitValid(d, m, opt, &shared{base: base})
+	return fitValid(d, m, opt, &shared{base: base, first: first})
 }
 
 // fitValid is Fit on data that passed validate; sh holds what the fits
@@ -235,7 +245,7 @@ func fitValid(d *Data, m Model, opt Options, sh *shared) (*Result, error) {
 }
 
 // fitChecked is fitValid but for the sums it keeps.
-func fitChecked(d *Data, m Model, opt Options, sh *shared) (*Result, error) {
+func fitChecked(d *Data, m Model, opt Options, sh *shared) (res *Result, err error) {
 	ly, err := newLayout(m, d.J, d.Predictors)
 	if err != nil {
 		return nil, &InputError{err.Error()}
@@ -252,6 +262,12 @@ func fitChecked(d *Data, m Model, opt Options, sh *shared) (*Result, error) {
 		opt.MaxIter = 200
 	}
 	pr := newProblem(sh.design(d), m, ly, opt.Workers)
+	pr.first = sh.first
+	defer func() {
+		if l := pr.last; res != nil && l != nil && bitsEqual(l.theta, res.Estimates) {
+			res.last = l
+		}
+	}()
 	start := opt.Start
 	if start != nil && len(start) != len(ly.params) {
 		return nil, inputErr("start has %d values for %d parameters", len(start), len(ly.params))

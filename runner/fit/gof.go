@@ -131,8 +131,39 @@ func LipsitzTest(d *Data, r *Result, groups int, opt Options) (*Lipsitz, error) 
 		out.Test = failedTest("lipsitz", "every row has the same predicted score, so there is only one group")
 		return out, nil
 	}
-	// Phase 4: the model with group indicators, held as each row's group
-	// (Data.ind) beside the rows of d.
+	// Phase 4: the model with group indicators.
+	ad, am, start, err := withIndicators(d, r, t)
+	if err != nil {
+		return nil, err
+	}
+	opt.Start = start
+	opt.Sandwich = nil
+	// X's rank sums from the fit of r, and the first evaluation's sums
+	// from its last (refitsums.go).
+	var first *firstSums
+	if r.last != nil {
+		first = &firstSums{theta: start, base: r.last}
+	}
+	full, err := fitFromWith(ad, am, opt, r.rank, first)
+	if err != nil {
+		if strings.Contains(err.Error(), "collinear") {
+			out.Test = failedTest("lipsitz", "not defined for these data: the score groups coincide with values of the predictors (too few distinct predictor patterns for %d groups), so their indicators are a combination of the predictors (%v)", G, err)
+		} else {
+			out.Test = failedTest("lipsitz", "the model with group indicators could not be fitted: %v", err)
+		}
+		return out, nil
+	}
+	out.Test = LRTest(r, full)
+	out.Test.Name = "lipsitz"
+	return out, nil
+}
+
+// withIndicators is the data and model of fit r's Lipsitz refit, with the
+// indicators of t's groups 2..G held as each row's group (Data.ind)
+// beside the rows of d as parallel predictors, and its start: r's
+// estimates, 0 for the indicators.
+func withIndicators(d *Data, r *Result, t *ScoreGroups) (*Data, Model, []float64, error) {
+	G := t.Groups
 	ad := &Data{Y: d.Y, J: d.J, Categories: d.Categories, Weights: d.Weights, Offset: d.Offset,
 		Predictors: append([]string(nil), d.Predictors...), X: d.X, ind: &indicators{group: t.group, count: G - 1}}
 	for g := 1; g < G; g++ {
@@ -145,7 +176,7 @@ func LipsitzTest(d *Data, r *Result, groups int, opt Options) (*Lipsitz, error) 
 	}
 	ly, err := newLayout(am, ad.J, ad.Predictors)
 	if err != nil {
-		return nil, err
+		return nil, Model{}, nil, err
 	}
 	start := make([]float64, len(ly.params))
 	for i, name := range ly.names() {
@@ -153,20 +184,7 @@ func LipsitzTest(d *Data, r *Result, groups int, opt Options) (*Lipsitz, error) 
 			start[i] = v
 		}
 	}
-	opt.Start = start
-	opt.Sandwich = nil
-	full, err := fitFrom(ad, am, opt, r.rank) // X's rank sums from the fit of r
-	if err != nil {
-		if strings.Contains(err.Error(), "collinear") {
-			out.Test = failedTest("lipsitz", "not defined for these data: the score groups coincide with values of the predictors (too few distinct predictor patterns for %d groups), so their indicators are a combination of the predictors (%v)", G, err)
-		} else {
-			out.Test = failedTest("lipsitz", "the model with group indicators could not be fitted: %v", err)
-		}
-		return out, nil
-	}
-	out.Test = LRTest(r, full)
-	out.Test.Name = "lipsitz"
-	return out, nil
+	return ad, am, start, nil
 }
 
 // weightOf is row i's weight (1 without weights).

@@ -18,12 +18,15 @@ type shared struct {
 	// base: sums of an earlier rank check of the same rows, which the
 	// check takes X's sums from (LipsitzTest); sums: this check's.
 	base, sums *rankSums
-	desOnce    sync.Once
-	des        *design
-	subOnce    sync.Once
-	sub        *design
-	mu         sync.Mutex
-	fitted     map[string]gridFit // by modelKey, options of the auxiliary fits
+	// first: the sums of a refit's first evaluation at a given point, made
+	// from the last of the fit it extends (LipsitzTest).
+	first   *firstSums
+	desOnce sync.Once
+	des     *design
+	subOnce sync.Once
+	sub     *design
+	mu      sync.Mutex
+	fitted  map[string]gridFit // by modelKey, options of the auxiliary fits
 }
 
 // gridFit is a finished fit as a later fit may read it.

@@ -48,7 +48,7 @@ func (p *problem) newton(theta0 []float64, maxIter int, scoring bool) newtonStat
 // evaluator wraps the problem's row sums as an evalFunc.
 func (p *problem) evaluator(scoring bool) evalFunc {
 	return func(th []float64, order int) evalOut {
-		a := p.evaluate(th, order, scoring)
+		a := p.evaluateKept(th, order, scoring)
 		out := evalOut{ll: a.ll, bad: a.bad || math.IsNaN(a.ll) || math.IsInf(a.ll, 0), order: order, minLogP: a.minLP, minKnown: true}
 		if out.bad {
 			return out
