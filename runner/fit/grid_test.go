@@ -16,6 +16,7 @@ func dumpResult(r *Result, err error) string {
 	sep := c.Separation
 	c.Separation = nil
 	c.rank = nil // the rank check's sums, a pointer (the same data give the same sums)
+	c.last = nil // the last evaluation's sums, a pointer
 	s := fmt.Sprintf("%+v", c)
 	if sep != nil {
 		s += fmt.Sprintf(" separation %+v", *sep)

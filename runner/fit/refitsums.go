@@ -16,12 +16,16 @@ import "math"
 // the last bit.
 
 // lastSums is an evaluation to second order: the point, whether the
-// information was expected, the sums, and the design they were formed on.
+// information was expected, the sums, and the shape of the design they
+// were formed on (its rows, columns and indicator columns, and whether
+// rows were merged; not the design, which a fit keeping this must not
+// keep alive).
 type lastSums struct {
-	theta    []float64
-	expected bool
-	a        *acc
-	d        *design
+	theta            []float64
+	expected         bool
+	a                *acc
+	n, width, groups int
+	merged           bool
 }
 
 // firstSums gives the sums of a refit's first evaluation at theta from
@@ -43,7 +47,9 @@ func (p *problem) evaluateKept(theta []float64, order int, expected bool) *acc {
 	}
 	if order >= 2 && !a.bad {
 		p.lastMu.Lock()
-		p.last = &lastSums{theta: append([]float64(nil), theta...), expected: expected, a: a, d: p.d}
+		d := p.d
+		p.last = &lastSums{theta: append([]float64(nil), theta...), expected: expected, a: a,
+			n: d.n, width: d.width(), groups: d.groups, merged: d.mult != nil}
 		p.lastMu.Unlock()
 	}
 	return a
@@ -63,7 +69,7 @@ func (p *problem) takeFirst(theta []float64, order int, expected bool) *firstSum
 	p.first = nil
 	b, d := f.base, p.d
 	if b.expected != expected || b.a.order != 2 || d.groups == 0 || p.parInd != d.groups || len(p.ly.groups) > 0 ||
-		d.mult != nil || b.d.mult != nil || b.d.n != d.n || b.d.groups != 0 || b.d.width() != d.width() {
+		d.mult != nil || b.merged || b.n != d.n || b.groups != 0 || b.width != d.width() {
 		return nil
 	}
 	kf, kp0 := len(p.freeCols), len(p.parCols)-p.parInd
