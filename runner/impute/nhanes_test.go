@@ -86,12 +86,15 @@ func checkNhanes(t *testing.T, v rscript.Values) float64 {
 	if err != nil {
 		t.Fatal(err)
 	}
-	want = v.Get(t, "d2")
-	near(t, "D2 F (mice D2)", d2.F, want[0], tol)
-	near(t, "D2 df1", float64(d2.DF1), want[1], 0)
-	near(t, "D2 df2", d2.DF2, want[2], tol)
-	near(t, "D2 p", d2.P, want[3], tol)
-	near(t, "D2 r", d2.RIV, want[4], tol)
+	// The F test's five numbers against the reference's: F, df1, df2, p, r.
+	nearTest := func(name, source string, got FTest, want []float64) {
+		near(t, name+" F ("+source+")", got.F, want[0], tol)
+		near(t, name+" df1", float64(got.DF1), want[1], 0)
+		near(t, name+" df2", got.DF2, want[2], tol)
+		near(t, name+" p", got.P, want[3], tol)
+		near(t, name+" r", got.RIV, want[4], tol)
+	}
+	nearTest("D2", "mice D2", d2, v.Get(t, "d2"))
 	// D1 of bmi and hyp (mitml's testModels of the model against the one
 	// without them, no complete-data degrees of freedom): F, df1, df2, p, r.
 	C := make([]float64, 2*p.P)
@@ -100,12 +103,7 @@ func checkNhanes(t *testing.T, v rscript.Values) float64 {
 	if err != nil {
 		t.Fatal(err)
 	}
-	want = v.Get(t, "d1")
-	near(t, "D1 F (mitml testModels)", d1.F, want[0], tol)
-	near(t, "D1 df1", float64(d1.DF1), want[1], 0)
-	near(t, "D1 df2", d1.DF2, want[2], tol)
-	near(t, "D1 p", d1.P, want[3], tol)
-	near(t, "D1 r", d1.RIV, want[4], tol)
+	nearTest("D1", "mitml testModels", d1, v.Get(t, "d1"))
 	return worst
 }
 
