@@ -108,6 +108,18 @@ func randCols(rng *rand.Rand, k, n int) []float64 {
 	return u
 }
 
+// crossBenchBlock is the block of the cross-product benchmarks: K
+// columns of blockRows rows and positive weights, seeded by K.
+func crossBenchBlock(K int) (cols, w []float64) {
+	rng := rand.New(rand.NewPCG(5, uint64(K)))
+	cols = randCols(rng, K, blockRows)
+	w = randCols(rng, 1, blockRows)
+	for i := range w {
+		w[i] = math.Abs(w[i])
+	}
+	return cols, w
+}
+
 // BenchmarkCross compares the weighted cross-product of n = 4096 rows
 // (one block) of K columns with gonum's pure-Go BLAS on the same sums:
 // Dsyrk on the rows scaled by sqrt(w) (row-major, as a GLM would hold
@@ -115,12 +127,7 @@ func randCols(rng *rand.Rand, k, n int) []float64 {
 func BenchmarkCross(b *testing.B) {
 	const n = blockRows
 	for _, K := range []int{11, 45, 101} {
-		rng := rand.New(rand.NewPCG(5, uint64(K)))
-		cols := randCols(rng, K, n)
-		w := randCols(rng, 1, n)
-		for i := range w {
-			w[i] = math.Abs(w[i])
-		}
+		cols, w := crossBenchBlock(K)
 		rowsX := make([]float64, n*K)  // sqrt(w) x, row-major
 		rowsWX := make([]float64, n*K) // w x, row-major
 		plain := make([]float64, n*K)  // x, row-major

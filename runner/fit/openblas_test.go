@@ -83,12 +83,7 @@ func BenchmarkCrossOpenBLAS(b *testing.B) {
 	openblasThreads(1)
 	const n = blockRows
 	for _, K := range []int{11, 45, 101} {
-		rng := rand.New(rand.NewPCG(5, uint64(K)))
-		u := randCols(rng, K, n)
-		w := randCols(rng, 1, n)
-		for i := range w {
-			w[i] = math.Abs(w[i])
-		}
+		u, w := crossBenchBlock(K)
 		su, wu := scaledCols(u, w, K, n)
 		sw := make([]float64, n)
 		dst := make([]float64, K*K)
