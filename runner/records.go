@@ -290,11 +290,16 @@ type RunRecord struct {
 	GoVersion    string              `json:"go_version"`
 	Platform     string              `json:"os_arch"`
 	Command      string              `json:"command_line,omitempty"`
+	// MadeBy is the command whose outputs these are ("run", "rehearse",
+	// "power"): an output folder holds one command's outputs (absent in
+	// records written before it was kept, all of run or rehearse).
+	MadeBy string `json:"made_by,omitempty"`
 }
 
 // RunJSON is run.json for a run whose outputs are files (by name): the
-// program, plan, data and seed, and the SHA-256 of every output.
-func RunJSON(r *Result, files map[string][]byte) ([]byte, error) {
+// program, plan, data and seed, the SHA-256 of every output, and the
+// command that made them (madeBy: run or rehearse).
+func RunJSON(r *Result, madeBy string, files map[string][]byte) ([]byte, error) {
 	data := dataRef(r)
 	rec := RunRecord{Program: "ordplan", Version: r.Version,
 		Plan: PlanRef{File: filepath.Base(r.Plan.Path), Title: r.Plan.Title, SHA256: r.Plan.Hash},
@@ -305,7 +310,7 @@ func RunJSON(r *Result, files map[string][]byte) ([]byte, error) {
 			rec.Imputation = append(rec.Imputation, or.Imputed.Chained)
 		}
 	}
-	rec.GoVersion, rec.Platform, rec.Command = r.GoVersion, r.Platform, r.Command
+	rec.GoVersion, rec.Platform, rec.Command, rec.MadeBy = r.GoVersion, r.Platform, r.Command, madeBy
 	rec.Registration = registrationRecord(r.Registration)
 	return rec.withOutputs(files)
 }
@@ -316,7 +321,7 @@ func RunJSON(r *Result, files map[string][]byte) ([]byte, error) {
 func SimulationRunJSON(p *plan.Plan, command string, files map[string][]byte) ([]byte, error) {
 	rec := RunRecord{Program: "ordplan", Version: Version,
 		Plan: PlanRef{File: filepath.Base(p.Path), Title: p.Title, SHA256: p.Hash}, Seed: p.Seed,
-		GoVersion: runtime.Version(), Platform: runtime.GOOS + "/" + runtime.GOARCH, Command: command}
+		GoVersion: runtime.Version(), Platform: runtime.GOOS + "/" + runtime.GOARCH, Command: command, MadeBy: "power"}
 	return rec.withOutputs(files)
 }
 

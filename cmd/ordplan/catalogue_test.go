@@ -795,6 +795,15 @@ func catalogue(dir string) (items []badInput) {
 		withUsersFile(badInput{id: "O5", name: "user's own run.json in the output folder", args: []string{"run"}, plan: goodPlan, code: 1,
 			want: []string{"O5-out: run.json is not as an earlier ordplan run there left it (your own file, or an output changed since); ordplan does not overwrite it: move it away, or give another --out"}},
 			"O5-out", "run.json", `{"my": "settings"}`+"\n"),
+		// One command's outputs per folder: power into a run's folder
+		// (and the reverse) would remove the other's files.
+		withUsersFile(badInput{id: "O6", name: "ordplan run into the output folder of ordplan power", args: []string{"run"}, plan: goodPlan, code: 1,
+			want: []string{"O6-out: it holds the outputs of ordplan power (its run.json says so); ordplan run does not replace or remove them: give another --out, or move them away"}},
+			"O6-out", "run.json", `{"program": "ordplan", "made_by": "power", "outputs_sha256": {}}`+"\n"),
+		withUsersFile(badInput{id: "O6", name: "ordplan power into the output folder of a run recorded before the maker was kept",
+			args: []string{"power", "--n", "100", "--replicates", "2", "--out", filepath.Join(dir, "O6-power")}, code: 1, plan: goodPlan + assumed("{a: 0.2}", ""),
+			want: []string{"O6-power: it holds the outputs of ordplan run or rehearse (its run.json says so); ordplan power does not replace or remove them: give another --out, or move them away"}},
+			"O6-power", "run.json", `{"program": "ordplan", "outputs_sha256": {}}`+"\n"),
 
 		// The queue.
 		{id: "Q1", name: "queue without the shared secret", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-secret-file", ""}, code: 2,

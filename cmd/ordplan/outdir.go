@@ -124,10 +124,23 @@ const recordFile = "run.json"
 // under one of these names that no earlier run left as it is stops the
 // run (O4, O5). Names known only from the results are checked again when
 // written (writeOutputs).
-func claimOutput(dir string, fixed []string) (*outputLock, error) {
+//
+// An output folder holds one command's outputs: a run.json there that
+// another command wrote (command, the one claiming, is run, rehearse or
+// power) stops it too, so that one command's outputs never remove or
+// replace another's (O6). A record written before the command was kept
+// is a run's or a rehearsal's (power kept none).
+func claimOutput(dir, command string, fixed []string) (*outputLock, error) {
 	lock, err := lockOutput(dir)
 	if err != nil {
 		return nil, err
+	}
+	if prev, ok := previousMaker(dir); ok && prev != command && (prev != "" || command == "power") {
+		lock.Unlock()
+		if prev == "" {
+			prev = "run or rehearse"
+		}
+		return nil, fmt.Errorf("output folder %s: it holds the outputs of ordplan %s (its run.json says so); ordplan %s does not replace or remove them: give another --out, or move them away", dir, prev, command)
 	}
 	if mine := usersFiles(dir, slices.Concat(fixed, []string{recordFile}), nil); len(mine) > 0 {
 		lock.Unlock()
@@ -138,9 +151,9 @@ func claimOutput(dir string, fixed []string) (*outputLock, error) {
 
 // writeRun writes a run's or a rehearsal's files with its run.json (see
 // writeOutputs).
-func writeRun(r *runner.Result, dir string, files map[string][]byte) error {
+func writeRun(r *runner.Result, command, dir string, files map[string][]byte) error {
 	return writeOutputs(dir, files, func(files map[string][]byte) ([]byte, error) {
-		return runner.RunJSON(r, files)
+		return runner.RunJSON(r, command, files)
 	})
 }
 
@@ -261,6 +274,24 @@ func previousRecord(dir string) (outputs map[string]string, foreign bool) {
 		return nil, true
 	}
 	return prev.Outputs, false
+}
+
+// previousMaker is the command the run.json in dir names as the maker of
+// its outputs ("" for a record from before it was kept); ok is false when
+// there is no ordplan record there.
+func previousMaker(dir string) (command string, ok bool) {
+	b, err := os.ReadFile(filepath.Join(dir, recordFile))
+	if _, foreign := previousRecord(dir); err != nil || foreign {
+		return "", false
+	}
+	var prev struct {
+		Program string `json:"program"`
+		MadeBy  string `json:"made_by"`
+	}
+	if json.Unmarshal(b, &prev) != nil || prev.Program != "ordplan" {
+		return "", false
+	}
+	return prev.MadeBy, true
 }
 
 // usersFiles lists the files in dir among names that a run would replace

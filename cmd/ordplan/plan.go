@@ -105,7 +105,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 		base := filepath.Base(planPath)
 		dir = filepath.Join("out", base[:len(base)-len(filepath.Ext(base))])
 	}
-	lock, err := claimOutput(dir, render.ReportFiles)
+	lock, err := claimOutput(dir, "run", render.ReportFiles)
 	if err != nil {
 		return fail(stderr, err)
 	}
@@ -135,7 +135,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
-	if err := writeRun(res, dir, files); err != nil {
+	if err := writeRun(res, "run", dir, files); err != nil {
 		return fail(stderr, err)
 	}
 	fmt.Fprintln(stdout, registrationLine(reg))

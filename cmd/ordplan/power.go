@@ -67,7 +67,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		base := filepath.Base(planPath)
 		dir = filepath.Join("out", base[:len(base)-len(filepath.Ext(base))]+"-power")
 	}
-	olock, err := claimOutput(dir, render.PowerFiles)
+	olock, err := claimOutput(dir, "power", render.PowerFiles)
 	if err != nil {
 		return fail(stderr, err)
 	}
