@@ -83,11 +83,11 @@ func (d *Data) N() int { return len(d.Y) }
 
 // Options tunes a fit. The zero value is the default.
 type Options struct {
-	Covariance Covariance `json:"covariance"` // Observed (default) or Expected
-	MaxIter    int        `json:"max_iter"`   // Newton iterations (default 200)
-	Workers    int        `json:"workers"`    // goroutines over row blocks (default GOMAXPROCS)
-	Start      []float64  `json:"start"`      // starting values in parameter order (optional)
-	Scoring    bool       `json:"scoring"`    // Fisher scoring instead of Newton-Raphson
+	Covariance Covariance `json:"covariance"`        // Observed (default) or Expected
+	MaxIter    int        `json:"newton_iterations"` // Newton iterations (default 200)
+	Workers    int        `json:"workers"`           // goroutines over row blocks (default GOMAXPROCS)
+	Start      []float64  `json:"start_values"`      // starting values in parameter order (optional)
+	Scoring    bool       `json:"scoring"`           // Fisher scoring instead of Newton-Raphson
 	// RandomStarts is the number of random starts of a model with
 	// constrained predictors: 0 means 5, a negative number none.
 	RandomStarts int `json:"random_starts"`

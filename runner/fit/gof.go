@@ -227,7 +227,7 @@ func scoresOf(d *Data, r *Result, pr *problem) (probs, score []float64) {
 // may stay empty. order may be left in another order. Long lists of rows
 // of weight 1 are cut by counts (cutByCounts), without a sort.
 func cutByScore(order []int, score []float64, weights []float64, groups int, out []int) {
-	if weights == nil && len(order) >= cutByCountsFrom && !slices.ContainsFunc(order, func(i int) bool { return math.IsNaN(score[i]) }) {
+	if weights == nil && len(order) >= cutByCountsFrom && len(order) <= math.MaxInt32 && !slices.ContainsFunc(order, func(i int) bool { return math.IsNaN(score[i]) }) {
 		cutByCounts(order, score, groups, out)
 		return
 	}
