@@ -774,24 +774,29 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("predictions files: %v", m)
 				}
 			}},
-		withUsersFile(badInput{id: "O4", name: "user's own file in the output folder under an output's name", args: []string{"run"}, plan: goodPlan, code: 1,
+		// The folder's run.json records report.md with other bytes: an
+		// output the user changed since the run wrote it.
+		withRecord(withUsersFile(badInput{id: "O4", name: "an output changed since the run wrote it", args: []string{"run"}, plan: goodPlan, code: 1,
 			want: []string{"O4-out: report.md is not as an earlier ordplan run there left it (your own file, or an output changed since); ordplan does not overwrite it: move it away, or give another --out"}},
-			"O4-out", "report.md", "my notes\n"),
+			"O4-out", "report.md", "my notes\n"), "O4-out", "run", "report.md"),
 		// Checked before any data row is read: the data's own problem (a text
-		// value where a number belongs) would be reported otherwise.
-		withUsersFile(withUsersFile(badInput{id: "O4", name: "user's own file in the output folder, found before the data are read", args: []string{"run"}, plan: edit("file: d.csv", "file: text.csv"), code: 1,
-			want: []string{"O4-out: report.html and report.md are not as an earlier ordplan run there left it"}},
-			"O4-out", "report.md", "my notes\n"), "O4-out", "report.html", "<p>my page</p>\n"),
-		// The subset of A14 stops a simulation: the folder is checked first.
-		withUsersFile(badInput{id: "O4", name: "user's own power.md in the folder of ordplan power, found before simulating",
-			args: []string{"power", "--n", "100", "--replicates", "2", "--out", filepath.Join(dir, "O4-power")}, code: 1,
+		// value where a number belongs) would be reported otherwise. Several
+		// files: the message speaks of them in the plural.
+		withRecord(withUsersFile(withUsersFile(badInput{id: "O4", name: "the user's own files in a run's output folder, found before the data are read", args: []string{"run"}, plan: edit("file: d.csv", "file: text.csv"), code: 1,
+			want: []string{"O4-out: report.html and report.md are not as an earlier ordplan run there left them (your own files, or outputs changed since); ordplan does not overwrite them: move them away, or give another --out"}},
+			"O4-out", "report.md", "my notes\n"), "O4-out", "report.html", "<p>my page</p>\n"), "O4-out", "run", "decisions.json"),
+		// No run.json: the outputs of ordplan power from before it kept one
+		// (or the user's own files). The subset of A14 stops a simulation:
+		// the folder is checked first.
+		withUsersFile(withUsersFile(withUsersFile(badInput{id: "O7", name: "ordplan power into a folder of its outputs made before it kept run.json",
+			args: []string{"power", "--n", "100", "--replicates", "2", "--out", filepath.Join(dir, "O7-power")}, code: 1,
 			plan: edit("predictors:", "subset:\n  - {column: a, at_least: 5}\npredictors:") + assumed("{a: 0.2}", ""),
-			want: []string{"O4-power: power.md is not as an earlier ordplan run there left it (your own file, or an output changed since); ordplan does not overwrite it: move it away, or give another --out"}},
-			"O4-power", "power.md", "my sample size notes\n"),
-		withUsersFile(badInput{id: "O4", name: "user's own file under the name of the simulated data of ordplan rehearse",
-			args: []string{"rehearse", "--out", filepath.Join(dir, "O4-rehearsal")}, code: 1, plan: goodPlan + assumed("{a: 0.2}", ""),
-			want: []string{"O4-rehearsal: simulated-data.csv is not as an earlier ordplan run there left it"}},
-			"O4-rehearsal", "simulated-data.csv", "y,a,b\n1,0,0\n"),
+			want: []string{"O7-power: holds power.html, power.json and power.md but no run.json (the record ordplan keeps of the outputs it writes), so they are your own files, or outputs of an earlier ordplan that kept no record; ordplan does not overwrite them: move them away (or delete them if they are old outputs you no longer need), or give another --out"}},
+			"O7-power", "power.md", "# power and model choice\n"), "O7-power", "power.html", "<h1>power</h1>\n"), "O7-power", "power.json", "{}\n"),
+		withUsersFile(badInput{id: "O7", name: "the user's own file under the name of the simulated data of ordplan rehearse, no run.json",
+			args: []string{"rehearse", "--out", filepath.Join(dir, "O7-rehearsal")}, code: 1, plan: goodPlan + assumed("{a: 0.2}", ""),
+			want: []string{"O7-rehearsal: holds simulated-data.csv but no run.json (the record ordplan keeps of the outputs it writes), so it is your own file, or an output of an earlier ordplan that kept no record; ordplan does not overwrite it: move it away (or delete it if it is an old output you no longer need), or give another --out"}},
+			"O7-rehearsal", "simulated-data.csv", "y,a,b\n1,0,0\n"),
 		withUsersFile(badInput{id: "O5", name: "user's own run.json in the output folder", args: []string{"run"}, plan: goodPlan, code: 1,
 			want: []string{"O5-out: run.json is not as an earlier ordplan run there left it (your own file, or an output changed since); ordplan does not overwrite it: move it away, or give another --out"}},
 			"O5-out", "run.json", `{"my": "settings"}`+"\n"),
@@ -857,6 +862,12 @@ func withUsersFile(it badInput, folder, name, content string) badInput {
 		}
 	}
 	return it
+}
+
+// withRecord adds to an item an ordplan run.json in folder, made by the
+// command, recording name with bytes other than any the item writes there.
+func withRecord(it badInput, folder, command, name string) badInput {
+	return withUsersFile(it, folder, "run.json", `{"program": "ordplan", "made_by": "`+command+`", "outputs_sha256": {"`+name+`": "`+sha256Hex([]byte("as the run wrote it"))+`"}}`+"\n")
 }
 
 func TestBadInputCatalogue(t *testing.T) {

@@ -208,10 +208,24 @@ func writeOutputs(dir string, files map[string][]byte, record func(map[string][]
 	return nil
 }
 
-// usersFilesError is the refusal to replace the user's files (O4).
+// usersFilesError is the refusal to replace the user's files: O4 where
+// the folder's run.json records other contents for them, or none; O7 where
+// the folder has no run.json at all, so that the files may be an earlier
+// ordplan's outputs made before it kept the record (ordplan power's were)
+// or the user's own.
 func usersFilesError(dir string, mine []string) error {
-	return fmt.Errorf("output folder %s: %s not as an earlier ordplan run there left it (your own file, or an output changed since); ordplan does not overwrite it: move it away, or give another --out",
-		dir, quoteNames(mine))
+	names := joinNames(mine)
+	// The words that follow the number of files: one, or several.
+	w := struct{ is, they, them, file, output, old string }{"is", "it", "it", "your own file", "an output", "an old output"}
+	if len(mine) > 1 {
+		w.is, w.they, w.them, w.file, w.output, w.old = "are", "they", "them", "your own files", "outputs", "old outputs"
+	}
+	if fi, err := os.Lstat(filepath.Join(dir, recordFile)); err != nil || !fi.Mode().IsRegular() {
+		return fmt.Errorf("output folder %s: holds %s but no %s (the record ordplan keeps of the outputs it writes), so %s %s %s, or %s of an earlier ordplan that kept no record; ordplan does not overwrite %s: move %s away (or delete %s if %s %s you no longer need), or give another --out",
+			dir, names, recordFile, w.they, w.is, w.file, w.output, w.them, w.them, w.them, w.they, w.is+" "+w.old)
+	}
+	return fmt.Errorf("output folder %s: %s %s not as an earlier ordplan run there left %s (%s, or %s changed since); ordplan does not overwrite %s: move %s away, or give another --out",
+		dir, names, w.is, w.them, w.file, w.output, w.them, w.them)
 }
 
 // staleOutputs lists the outputs named by the run.json in dir that are not
@@ -334,10 +348,10 @@ func sha256Hex(b []byte) string {
 	return hex.EncodeToString(sum[:])
 }
 
-// quoteNames writes file names for a message: "a is", "a and b are".
-func quoteNames(names []string) string {
+// joinNames writes file names for a message: "a", "a and b", "a, b and c".
+func joinNames(names []string) string {
 	if len(names) == 1 {
-		return names[0] + " is"
+		return names[0]
 	}
-	return strings.Join(names[:len(names)-1], ", ") + " and " + names[len(names)-1] + " are"
+	return strings.Join(names[:len(names)-1], ", ") + " and " + names[len(names)-1]
 }

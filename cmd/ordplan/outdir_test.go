@@ -133,7 +133,7 @@ func TestPowerOutputsRecorded(t *testing.T) {
 func TestClaimOutputChecksFixedNames(t *testing.T) {
 	dir := t.TempDir()
 	os.WriteFile(filepath.Join(dir, "report.md"), []byte("same"), 0o644)
-	if _, err := claimOutput(dir, "run", []string{"decisions.json", "report.md"}); err == nil || !strings.Contains(err.Error(), "report.md is not as an earlier") {
+	if _, err := claimOutput(dir, "run", []string{"decisions.json", "report.md"}); err == nil || !strings.Contains(err.Error(), "holds report.md but no run.json") {
 		t.Fatalf("claim: %v", err)
 	}
 	// The refusal released the lock.
