@@ -594,8 +594,16 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`X9.yaml:3:10: data.parts: cannot open the part "gone.csv" (looked for `, `gone.csv): no such file or directory`}},
 		{id: "X10", name: "data.parts: a pattern that matches no file", args: []string{"check"}, plan: edit("file: d.csv", "parts: [d.csv, nothere/*.csv]"), code: 1,
 			want: []string{`X10.yaml:3:10: data.parts: the pattern "nothere/*.csv" matches no file (looked for `}},
-		{id: "X10", name: "ordplan fit --parts: a pattern that matches no file", args: []string{"fit", "--outcome", "y", "--predictors", "a", "--parts", filepath.Join(dir, "d.csv") + "," + filepath.Join(dir, "nothere", "*.csv")}, code: 1,
-			want: []string{`ordplan: --parts: the pattern "nothere/*.csv" matches no file (looked for nothere/*.csv)`}},
+		// Typed as a user types it, in the data's folder: the message quotes
+		// the pattern as typed and says where it looked.
+		{id: "X10", name: "ordplan fit --parts: a pattern that matches no file", args: []string{"fit", "--outcome", "y", "--predictors", "a", "--parts", "d.csv,nothere/*.csv"}, code: 1,
+			setup: inDataFolder,
+			want:  []string{`ordplan: --parts: the pattern "nothere/*.csv" matches no file (looked for `},
+			check: func(t *testing.T, dir, out, errs string) {
+				if want := "(looked for " + filepath.Join(dir, "nothere", "*.csv") + ")"; !strings.Contains(errs, want) {
+					t.Errorf("want %q in %s", want, errs)
+				}
+			}},
 		{id: "X11", name: "data.parts: a part with other columns", args: []string{"check"}, plan: edit("file: d.csv", "parts: [parts/p1.csv, otherpart.csv]"), code: 1,
 			want: []string{`X11.yaml:3:10: data.parts: the part otherpart.csv has other columns than the first part parts/p1.csv (it lacks "b"`, `; it has "z" besides); every part must have the same columns`}},
 		{id: "X12", name: "data.parts: a part given twice (by a pattern and by name)", args: []string{"check"}, plan: edit("file: d.csv", "parts: [parts/*.csv, parts/p2.csv]"), code: 1,
@@ -863,6 +871,10 @@ func withUsersFile(it badInput, folder, name, content string) badInput {
 	}
 	return it
 }
+
+// inDataFolder runs an item in the folder of the data files, as a user
+// types names relative to it.
+func inDataFolder(t *testing.T, dir, id string) { t.Chdir(dir) }
 
 // withRecord adds to an item an ordplan run.json in folder, made by the
 // command, recording name with bytes other than any the item writes there.
