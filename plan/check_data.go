@@ -40,19 +40,10 @@ func (d *decoder) checkParts(p *Plan) ([]string, bool) {
 	if !d.clean("data.parts") || len(p.Data.PartPaths) == 0 {
 		return nil, false
 	}
-	seen := map[string]string{}
 	ok := true
-	for i, path := range p.Data.PartPaths {
-		file := p.Data.PartFiles[i]
-		if prev, dup := seen[path]; dup {
-			how := "as " + strconv.Quote(prev) + " and as " + strconv.Quote(file)
-			if prev == file {
-				how = "a pattern and a name, or two patterns, both give it"
-			}
-			d.errAt("data.parts", "the part %s comes twice from the list (%s); every part is read once", strconv.Quote(file), how)
-			ok = false
-		}
-		seen[path] = file
+	for _, msg := range PartsTwice(p.Data.PartFiles, p.Data.PartPaths) {
+		d.errAt("data.parts", "%s", msg)
+		ok = false
 	}
 	var first []string
 	for i, path := range p.Data.PartPaths {

@@ -1,8 +1,10 @@
 package plan
 
 import (
+	"fmt"
 	"path/filepath"
 	"sort"
+	"strconv"
 	"strings"
 
 	"ordplan/runner/data"
@@ -155,6 +157,26 @@ func ExpandParts(dir string, parts []string) (files, paths []string) {
 		}
 	}
 	return files, paths
+}
+
+// PartsTwice says of each part that the expanded parts (ExpandParts: the
+// files as named and their paths) give more than once how the list gives
+// it, one message a part: data.parts and ordplan fit --parts say it alike.
+func PartsTwice(files, paths []string) []string {
+	seen := map[string]string{}
+	var out []string
+	for i, path := range paths {
+		file := files[i]
+		if prev, dup := seen[path]; dup {
+			how := "as " + strconv.Quote(prev) + " and as " + strconv.Quote(file)
+			if prev == file {
+				how = "a pattern and a name, or two patterns, both give it"
+			}
+			out = append(out, fmt.Sprintf("the part %s comes twice from the list (%s); every part is read once", strconv.Quote(file), how))
+		}
+		seen[path] = file
+	}
+	return out
 }
 
 var (

@@ -8,6 +8,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime/debug"
+	"slices"
 	"strings"
 
 	"ordplan/plan"
@@ -341,12 +342,20 @@ func (f *fitFlags) partFiles() ([]string, error) {
 	if parts == nil {
 		return nil, nil
 	}
+	for i, p := range parts {
+		if j := slices.Index(parts[:i], p); j >= 0 {
+			return nil, fmt.Errorf("--parts: %q is listed twice (items %d and %d of %q); every part is read once", p, j+1, i+1, *f.parts)
+		}
+	}
 	files, paths := plan.ExpandParts(".", parts)
 	for i, file := range files {
 		if _, err := os.Stat(paths[i]); err != nil && strings.ContainsAny(file, "*?[") {
 			where, _ := filepath.Abs(paths[i])
 			return nil, fmt.Errorf("--parts: the pattern %q matches no file (looked for %s)", file, where)
 		}
+	}
+	if twice := plan.PartsTwice(files, paths); len(twice) > 0 {
+		return nil, fmt.Errorf("--parts: %s", twice[0])
 	}
 	return paths, nil
 }
