@@ -5,20 +5,17 @@ import (
 	"ordplan/runner/fit"
 )
 
-// lipsitzOverParts is why a fit summed over parts held by queue workers
-// has no Lipsitz test.
-const lipsitzOverParts = "not computed for a fit over parts held by queue workers: the test refits the model with indicators of groups of predicted score, which needs every row in one place (ordplan fit --parts without --queue reads the parts here and computes it)"
-
 // PartitionedChecks gives the checks of a fit summed over the partition
 // files parts (whole: what the parts hold together), as FitOneChecked
 // gives them for one file, reading one part at a time: the thresholds-only
 // model is fitted to the category counts (without an offset its maximum
 // reproduces the observed shares, as the fit to the rows does), the
 // spread of the linear predictor for McKelvey-Zavoina is gathered part by
-// part, and the Lipsitz test, which refits on every row, is said not to be
-// computed. Partitioned fits have no categorical predictors, so the
-// Pulkstenis-Robinson tests are not computed either, as for one file.
-func PartitionedChecks(s SingleFit, res *fit.Result, parts []string, whole fit.Whole) (*SingleChecks, error) {
+// part; lz is the Lipsitz test made over the parts by the workers
+// (queue.LipsitzPartitioned). Partitioned fits have no categorical
+// predictors, so the Pulkstenis-Robinson tests are not computed, as for one
+// file.
+func PartitionedChecks(s SingleFit, res *fit.Result, parts []string, whole fit.Whole, lz *fit.Lipsitz) (*SingleChecks, error) {
 	if res == nil || !res.OK() {
 		return nil, nil
 	}
@@ -54,7 +51,7 @@ func PartitionedChecks(s SingleFit, res *fit.Result, parts []string, whole fit.W
 	}
 	return &SingleChecks{
 		Overall:      OverallRecord{Model: res.Name, Null: fit.ModelID(res.Model.ComparisonName(), "thresholds-only", res.Model.Link), Overall: o},
-		Lipsitz:      &fit.Lipsitz{Test: fit.Test{Name: "lipsitz", Reason: lipsitzOverParts}},
+		Lipsitz:      lz,
 		PatternSplit: &PatternSplitRecord{Predictors: []string{}, NotComputed: noCategorical},
 	}, nil
 }

@@ -6,12 +6,13 @@ import (
 
 	"ordplan/render"
 	"ordplan/runner"
+	"ordplan/runner/fit"
 	"ordplan/runner/queue"
 )
 
 // fitPartitioned fits one model over the parts through queue workers
 // (ordplan fit --parts --queue): each Newton evaluation is summed over the
-// parts.
+// parts, and so is the Lipsitz test's.
 func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, stderr io.Writer) int {
 	qf := f.queue
 	a, err := runner.ResolveFit(s)
@@ -39,11 +40,18 @@ func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, std
 		return fail(stderr, err)
 	}
 	defer done()
-	res, err := queue.FitPartitioned(ctx, c, refs, whole, m, queue.PartitionOptions{Data: dopt})
+	popt := queue.PartitionOptions{Data: dopt}
+	res, err := queue.FitPartitioned(ctx, c, refs, whole, m, popt)
 	if err != nil {
 		return fail(stderr, err)
 	}
-	checks, err := runner.PartitionedChecks(s, res, parts, whole)
+	var lz *fit.Lipsitz
+	if res.OK() {
+		if lz, err = queue.LipsitzPartitioned(ctx, c, refs, whole, res, popt); err != nil {
+			return fail(stderr, err)
+		}
+	}
+	checks, err := runner.PartitionedChecks(s, res, parts, whole, lz)
 	if err != nil {
 		return fail(stderr, err)
 	}

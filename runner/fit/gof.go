@@ -63,7 +63,7 @@ func GroupByScore(d *Data, r *Result, groups int) (*ScoreGroups, error) {
 	}
 	w := d.weightOf
 	// Phase 1: scores and probabilities.
-	probs, score := scoresOf(d, r, pr)
+	probs, score := scoresOf(d, r.Estimates, pr)
 	// Phase 2: groups of about equal weight; a run of equal scores goes
 	// to the group of its weighted midpoint.
 	order := make([]int, n)
@@ -87,12 +87,8 @@ func GroupByScore(d *Data, r *Result, groups int) (*ScoreGroups, error) {
 			G++
 		}
 	}
-	t := &ScoreGroups{Groups: G, Categories: r.Categories, Low: make([]float64, G), High: make([]float64, G), Weight: make([]float64, G),
-		Observed: make([][]float64, G), Expected: make([][]float64, G), group: raw}
-	for g := 0; g < G; g++ {
-		t.Low[g], t.High[g] = math.Inf(1), math.Inf(-1)
-		t.Observed[g], t.Expected[g] = make([]float64, J), make([]float64, J)
-	}
+	t := newScoreTable(G, J)
+	t.Categories, t.group = r.Categories, raw
 	// Phase 3: observed and expected counts.
 	for i := 0; i < n; i++ {
 		g := dense[raw[i]]
@@ -100,18 +96,36 @@ func GroupByScore(d *Data, r *Result, groups int) (*ScoreGroups, error) {
 			g = 0 // a zero-weight row in an empty group: counts nothing
 		}
 		t.group[i] = g
-		wi := w(i)
-		if wi == 0 {
-			continue
-		}
-		t.Low[g], t.High[g] = math.Min(t.Low[g], score[i]), math.Max(t.High[g], score[i])
-		t.Weight[g] += wi
-		t.Observed[g][d.Y[i]] += wi
-		for j := 0; j < J; j++ {
-			t.Expected[g][j] += wi * probs[i*J+j]
-		}
+		t.count(d, i, g, score, probs)
 	}
 	return t, nil
+}
+
+// newScoreTable is an empty calibration table of G groups and J
+// categories.
+func newScoreTable(G, J int) *ScoreGroups {
+	t := &ScoreGroups{Groups: G, Low: make([]float64, G), High: make([]float64, G), Weight: make([]float64, G),
+		Observed: make([][]float64, G), Expected: make([][]float64, G)}
+	for g := 0; g < G; g++ {
+		t.Low[g], t.High[g] = math.Inf(1), math.Inf(-1)
+		t.Observed[g], t.Expected[g] = make([]float64, J), make([]float64, J)
+	}
+	return t
+}
+
+// count adds row i of d, of the given scores and probabilities (n x J),
+// to group g (a row of weight 0 counts nothing).
+func (t *ScoreGroups) count(d *Data, i, g int, score, probs []float64) {
+	wi, J := d.weightOf(i), d.J
+	if wi == 0 {
+		return
+	}
+	t.Low[g], t.High[g] = math.Min(t.Low[g], score[i]), math.Max(t.High[g], score[i])
+	t.Weight[g] += wi
+	t.Observed[g][d.Y[i]] += wi
+	for j := 0; j < J; j++ {
+		t.Expected[g][j] += wi * probs[i*J+j]
+	}
 }
 
 // LipsitzTest is the Lipsitz, Fitzmaurice and Molenberghs (1996) test of
@@ -163,20 +177,42 @@ func LipsitzTest(d *Data, r *Result, groups int, opt Options) (*Lipsitz, error) 
 // beside the rows of d as parallel predictors, and its start: r's
 // estimates, 0 for the indicators.
 func withIndicators(d *Data, r *Result, t *ScoreGroups) (*Data, Model, []float64, error) {
-	G := t.Groups
-	ad := &Data{Y: d.Y, J: d.J, Categories: d.Categories, Weights: d.Weights, Offset: d.Offset,
-		Predictors: append([]string(nil), d.Predictors...), X: d.X, ind: &indicators{group: t.group, count: G - 1}}
-	for g := 1; g < G; g++ {
-		ad.Predictors = append(ad.Predictors, fmt.Sprintf("score_group_%d", g+1))
+	ad := indicatorData(d, t.group, t.Groups)
+	am, start, err := indicatorModel(r, t.Groups)
+	if err != nil {
+		return nil, Model{}, nil, err
 	}
+	return ad, am, start, nil
+}
+
+// indicatorData is d with the indicators of groups 2..G (group: each
+// row's group, 0..G-1) held as each row's group beside its predictors.
+func indicatorData(d *Data, group []int, G int) *Data {
+	return &Data{Y: d.Y, J: d.J, Categories: d.Categories, Weights: d.Weights, Offset: d.Offset,
+		Predictors: append(slices.Clone(d.Predictors), indicatorNames(G)...), X: d.X, ind: &indicators{group: group, count: G - 1}}
+}
+
+// indicatorNames names the indicators of groups 2..G.
+func indicatorNames(G int) []string {
+	var names []string
+	for g := 1; g < G; g++ {
+		names = append(names, fmt.Sprintf("score_group_%d", g+1))
+	}
+	return names
+}
+
+// indicatorModel is fit r's model with the indicators of G groups as
+// parallel predictors after its own, and the refit's start: r's
+// estimates, 0 for the indicators.
+func indicatorModel(r *Result, G int) (Model, []float64, error) {
 	am := r.Model
 	am.Effects = append(append([]Effect(nil), r.Model.Effects...), allEffects(G-1, Parallel)...)
 	if r.Model.Groups != nil {
 		am.Groups = append(append([]int(nil), r.Model.Groups...), make([]int, G-1)...)
 	}
-	ly, err := newLayout(am, ad.J, ad.Predictors)
+	ly, err := newLayout(am, r.J, append(slices.Clone(r.Predictors), indicatorNames(G)...))
 	if err != nil {
-		return nil, Model{}, nil, err
+		return Model{}, nil, err
 	}
 	start := make([]float64, len(ly.params))
 	for i, name := range ly.names() {
@@ -184,7 +220,7 @@ func withIndicators(d *Data, r *Result, t *ScoreGroups) (*Data, Model, []float64
 			start[i] = v
 		}
 	}
-	return ad, am, start, nil
+	return am, start, nil
 }
 
 // weightOf is row i's weight (1 without weights).
@@ -198,11 +234,11 @@ func (d *Data) weightOf(i int) float64 {
 // scoresOf gives every row's predicted probabilities (n x J, row-major)
 // and its ordinal score sum_j j P(y=j) (categories scored 1..J), blocks of
 // rows in parallel (each row's values are its own).
-func scoresOf(d *Data, r *Result, pr *problem) (probs, score []float64) {
+func scoresOf(d *Data, estimates []float64, pr *problem) (probs, score []float64) {
 	n, K, J := d.N(), len(d.Predictors), d.J
 	probs = make([]float64, n*J)
 	score = make([]float64, n)
-	c := pr.coefs(r.Estimates)
+	c := pr.coefs(estimates)
 	forBlocks(n, 0, func(_, lo, hi int) {
 		L := make([]float64, pr.q)
 		for i := lo; i < hi; i++ {

@@ -5,25 +5,39 @@ import (
 	"testing"
 )
 
-// partitioned fits d by FitFromSums with the log-likelihood summed over
-// nparts partitions of its rows, as a queue of workers would.
-func partitioned(t *testing.T, d *Data, m Model, nparts int, opt Options) *Result {
-	t.Helper()
+// splitParts cuts the rows of d into nparts partitions in order, with
+// what they hold together.
+func splitParts(d *Data, nparts int) ([]*Data, Whole) {
 	K := len(d.Predictors)
 	n := d.N()
 	var parts []*Data
 	for p := 0; p < nparts; p++ {
 		lo, hi := p*n/nparts, (p+1)*n/nparts
-		parts = append(parts, &Data{J: d.J, Predictors: d.Predictors, Y: d.Y[lo:hi], X: d.X[lo*K : hi*K]})
+		part := &Data{J: d.J, Predictors: d.Predictors, Categories: d.Categories, Y: d.Y[lo:hi], X: d.X[lo*K : hi*K]}
+		if d.Weights != nil {
+			part.Weights = d.Weights[lo:hi]
+		}
+		if d.Offset != nil {
+			part.Offset = d.Offset[lo:hi]
+		}
+		parts = append(parts, part)
 	}
 	counts := make([]float64, d.J)
-	for _, y := range d.Y {
-		counts[y]++
+	for i, y := range d.Y {
+		counts[y] += d.weightOf(i)
 	}
 	w := Whole{J: d.J, Predictors: d.Predictors, Categories: d.Categories, Counts: counts, Rows: n, Spread: &Spread{}}
 	for _, p := range parts {
 		w.Spread.Merge(SpreadOf(p))
 	}
+	return parts, w
+}
+
+// partitioned fits d by FitFromSums with the log-likelihood summed over
+// nparts partitions of its rows, as a queue of workers would.
+func partitioned(t *testing.T, d *Data, m Model, nparts int, opt Options) *Result {
+	t.Helper()
+	parts, w := splitParts(d, nparts)
 	sums := func(theta []float64, order int) (*Sums, error) {
 		total := &Sums{}
 		for _, p := range parts {

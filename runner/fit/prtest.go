@@ -77,7 +77,7 @@ func PulkstenisRobinsonTest(d *Data, r *Result, pattern []int, labels []string, 
 	}
 	w := d.weightOf
 	// Phase 1: scores and probabilities.
-	probs, score := scoresOf(d, r, pr)
+	probs, score := scoresOf(d, r.Estimates, pr)
 	// Phase 2: each pattern cut in two at its weighted median score.
 	rows := make([][]int, len(labels))
 	for i := 0; i < n; i++ {

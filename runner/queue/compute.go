@@ -38,19 +38,22 @@ func (w *Worker) compute(ctx context.Context, t *Task) (r *Reply) {
 		if path, err = w.cache.path(ctx, w.Client.data, t.Fit.DataHash, t.Fit.DataFile, w.Limits.DataBytes); err == nil {
 			r.Result, err = runner.ExecuteJob(path, *t.Fit)
 		}
-	case KindSums, KindDiag:
-		if t.Part == nil {
-			err = fmt.Errorf("job %s carries no partition", t.ID)
+	case KindSums, KindDiag, KindScores:
+		if t.Part == nil || t.Kind == KindScores && t.Part.Score == nil {
+			err = fmt.Errorf("job %s carries no partition or no question", t.ID)
 			break
 		}
 		var d *fit.Data
-		if d, err = w.partition(ctx, t.Part); err != nil {
+		if d, err = w.partition(ctx, t.Part, t.Kind != KindScores); err != nil {
 			break
 		}
-		if t.Kind == KindSums {
+		switch t.Kind {
+		case KindSums:
 			r.Sums, err = fit.PartitionSums(d, t.Part.Model, t.Part.Theta, t.Part.Order)
-		} else {
+		case KindDiag:
 			r.Negative, r.MinProb, err = fit.PartitionDiagnostics(d, t.Part.Model, t.Part.Theta)
+		default:
+			r.Scores, err = t.Part.Score.Answer(d)
 		}
 		if err != nil {
 			err = fmt.Errorf("partition %s: %v", t.Part.Name, err)
@@ -59,14 +62,16 @@ func (w *Worker) compute(ctx context.Context, t *Task) (r *Reply) {
 		err = fmt.Errorf("job %s: unknown kind %q", t.ID, t.Kind)
 	}
 	if err != nil {
-		r.Result, r.Sums = nil, nil
+		r.Result, r.Sums, r.Scores = nil, nil, nil
 		r.Err = err.Error()
 	}
 	return r
 }
 
-// partition returns the fit data of a partition, loaded once per worker.
-func (w *Worker) partition(ctx context.Context, p *PartitionTask) (*fit.Data, error) {
+// partition returns the fit data of a partition, loaded once per worker;
+// with cut, and the task's Score set, its rows with the group indicators
+// of that cut, made once per worker too.
+func (w *Worker) partition(ctx context.Context, p *PartitionTask, cut bool) (*fit.Data, error) {
 	path, err := w.cache.path(ctx, w.Client.data, p.DataHash, p.Name, w.Limits.DataBytes)
 	if err != nil {
 		return nil, err
@@ -75,7 +80,19 @@ func (w *Worker) partition(ctx context.Context, p *PartitionTask) (*fit.Data, er
 	if err != nil {
 		return nil, err
 	}
-	return w.parts.get(p.DataHash+"\n"+string(opts), func() (*fit.Data, error) {
+	key := p.DataHash + "\n" + string(opts)
+	if cut && p.Score != nil {
+		q, err := json.Marshal(p.Score)
+		if err != nil {
+			return nil, err
+		}
+		d, err := w.partition(ctx, p, false)
+		if err != nil {
+			return nil, err
+		}
+		return w.parts.get(key+"\n"+string(q), func() (*fit.Data, error) { return p.Score.Indicators(d) })
+	}
+	return w.parts.get(key, func() (*fit.Data, error) {
 		f, err := os.Open(path)
 		if err != nil {
 			return nil, fmt.Errorf("partition %s: %v", p.Name, err)

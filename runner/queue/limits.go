@@ -60,12 +60,12 @@ func (l Limits) check(t *Task) error {
 		case len(t.Fit.DataOptions.Predictors) > l.Predictors:
 			return fmt.Errorf("job %s has %d predictors; this worker allows at most %d (ordplan worker --max-predictors)", t.ID, len(t.Fit.DataOptions.Predictors), l.Predictors)
 		}
-	case KindSums, KindDiag:
+	case KindSums, KindDiag, KindScores:
 		if t.Part == nil {
 			return fmt.Errorf("job %s carries no partition", t.ID)
 		}
 		switch {
-		case len(t.Part.Theta) > l.Params:
+		case len(t.Part.Theta) > l.Params || t.Part.Score != nil && len(t.Part.Score.Estimates) > l.Params:
 			return fmt.Errorf("job %s has %d parameters; this worker allows at most %d", t.ID, len(t.Part.Theta), l.Params)
 		case len(t.Part.DataOptions.Predictors) > l.Predictors:
 			return fmt.Errorf("job %s has %d predictors; this worker allows at most %d (ordplan worker --max-predictors)", t.ID, len(t.Part.DataOptions.Predictors), l.Predictors)

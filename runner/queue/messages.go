@@ -14,6 +14,9 @@ const (
 	KindFit  = "fit"  // fit one model of a plan on a whole data file
 	KindSums = "sums" // log-likelihood (and derivatives) of one partition
 	KindDiag = "diag" // fitted-probability diagnostics of one partition
+	// KindScores answers a question about the ordinal scores of one
+	// partition's rows (the Lipsitz test of a fit over partitions).
+	KindScores = "scores"
 )
 
 // Task is one job message: what a worker computes.
@@ -23,7 +26,7 @@ type Task struct {
 	ID    string // what the reply must name: the fit id or the partition hash
 	Kind  string
 	Fit   *runner.Job    // KindFit
-	Part  *PartitionTask // KindSums, KindDiag
+	Part  *PartitionTask // KindSums, KindDiag, KindScores
 }
 
 // PartitionTask asks for one partition's sums (or diagnostics) at theta.
@@ -35,10 +38,14 @@ type PartitionTask struct {
 	Model       fit.Model
 	Theta       []float64
 	Order       int // 0 log-likelihood, 1 and score, 2 and second derivatives
+	// Score is the question of KindScores; with KindSums and KindDiag, the
+	// cut whose group indicators the rows get (Model is then the model
+	// with them).
+	Score *fit.ScoreQuery
 }
 
-// Reply is what a worker stores for a task. Exactly one of Result, Sums or
-// Err is meaningful; diagnostics fill Negative and MinProb.
+// Reply is what a worker stores for a task. Exactly one of Result, Sums,
+// Scores or Err is meaningful; diagnostics fill Negative and MinProb.
 type Reply struct {
 	Batch     string
 	Index     int
@@ -47,6 +54,7 @@ type Reply struct {
 	Delivered uint64 // delivery count of the job message when it was done
 	Result    *fit.Result
 	Sums      *fit.Sums
+	Scores    *fit.ScoreAnswer
 	Negative  int
 	MinProb   float64
 	Err       string

@@ -47,6 +47,44 @@ type PartitionOptions struct {
 // worker answered first. The estimates equal a local fit of the whole data
 // to rounding. Models with constrained predictors are refused.
 func FitPartitioned(ctx context.Context, c *Client, parts []PartitionRef, whole fit.Whole, m fit.Model, opt PartitionOptions) (*fit.Result, error) {
+	pr, err := newPartRun(ctx, c, parts, whole, m, opt)
+	if err != nil {
+		return nil, err
+	}
+	return fit.FitFromSums(whole, m, pr.sums(m, nil), pr.diag(m, nil), opt.Fit)
+}
+
+// LipsitzPartitioned is the Lipsitz test of fit r, made by FitPartitioned
+// over the same partitions, with the same options: the workers score
+// their partitions' rows, count them by ranges of scores and sum the
+// calibration table by the groups cut from those counts, and the model
+// with the group indicators is fitted over the partitions as r was
+// (fit.LipsitzOverParts). The groups are those of fit.LipsitzTest on the
+// whole data in one place.
+func LipsitzPartitioned(ctx context.Context, c *Client, parts []PartitionRef, whole fit.Whole, r *fit.Result, opt PartitionOptions) (*fit.Lipsitz, error) {
+	pr, err := newPartRun(ctx, c, parts, whole, r.Model, opt)
+	if err != nil {
+		return nil, err
+	}
+	return fit.LipsitzOverParts(r, whole, pr, 0, opt.Fit)
+}
+
+// partRun asks the partitions of one fit's data: one job per partition,
+// the replies in partition order.
+type partRun struct {
+	ctx   context.Context
+	c     *Client
+	parts []PartitionRef
+	whole fit.Whole
+	dopt  data.Options
+	key   []byte // names the fit: model, data options, whole, partitions
+	log   io.Writer
+	evals int
+}
+
+// newPartRun checks the partitions of a fit of m, puts them in the data
+// store and settles how every partition reads the outcome.
+func newPartRun(ctx context.Context, c *Client, parts []PartitionRef, whole fit.Whole, m fit.Model, opt PartitionOptions) (*partRun, error) {
 	if len(parts) == 0 {
 		return nil, errors.New("partitioned fit: no partitions")
 	}
@@ -79,55 +117,91 @@ func FitPartitioned(ctx context.Context, c *Client, parts []PartitionRef, whole 
 		}
 		hashes[i] = p.Hash
 	}
+	key, err := contentKey(nil, "partitioned", m, dopt, whole, hashes)
+	if err != nil {
+		return nil, err
+	}
+	return &partRun{ctx: ctx, c: c, parts: parts, whole: whole, dopt: dopt, key: key, log: opt.Log}, nil
+}
+
+// contentKey names what follows parent by the JSON of vs.
+func contentKey(parent []byte, what string, vs ...any) ([]byte, error) {
 	key := sha256.New()
-	fmt.Fprintf(key, "%s\n%s\npartitioned\n", formatVersion, runner.Version)
+	if parent == nil {
+		fmt.Fprintf(key, "%s\n%s\n%s\n", formatVersion, runner.Version, what)
+	} else {
+		fmt.Fprintf(key, "%x\n%s\n", parent, what)
+	}
 	enc := json.NewEncoder(key)
-	for _, v := range []any{m, dopt, whole, hashes} {
+	for _, v := range vs {
 		if err := enc.Encode(v); err != nil {
 			return nil, err
 		}
 	}
-	fitKey := key.Sum(nil)
-	evals := 0
-	eval := func(kind string, theta []float64, order int) ([]*Reply, error) {
-		id := evalID(fitKey, kind, theta, order)
-		tasks := make([]*Task, len(parts))
-		for i, p := range parts {
-			tasks[i] = &Task{Batch: id, Index: i, ID: p.Hash, Kind: kind, Part: &PartitionTask{
-				Name: p.Name, DataHash: p.Hash, DataOptions: dopt, J: whole.J, Model: m,
-				Theta: append([]float64(nil), theta...), Order: order}}
-		}
-		replies, _, err := c.runBatch(ctx, id, tasks, batchHooks{})
-		if err != nil {
-			return nil, fmt.Errorf("partitioned fit %s: %v", m.Name(), err)
-		}
-		evals++
-		if opt.Log != nil {
-			fmt.Fprintf(opt.Log, "queue: %s: evaluation %d (%s, order %d) over %d partitions\n", m.Name(), evals, kind, order, len(parts))
-		}
-		for _, r := range replies {
-			if r.Err != "" {
-				return nil, errors.New(r.Err)
-			}
-		}
-		return replies, nil
+	return key.Sum(nil), nil
+}
+
+// eval publishes the job of each partition for one question (id names it
+// by its content) and returns the replies in partition order.
+func (pr *partRun) eval(kind, id, what, detail string, task func(p PartitionRef) *PartitionTask) ([]*Reply, error) {
+	tasks := make([]*Task, len(pr.parts))
+	for i, p := range pr.parts {
+		pt := task(p)
+		pt.Name, pt.DataHash, pt.DataOptions, pt.J = p.Name, p.Hash, pr.dopt, pr.whole.J
+		tasks[i] = &Task{Batch: id, Index: i, ID: p.Hash, Kind: kind, Part: pt}
 	}
-	sums := func(theta []float64, order int) (*fit.Sums, error) {
-		replies, err := eval(KindSums, theta, order)
+	replies, _, err := pr.c.runBatch(pr.ctx, id, tasks, batchHooks{})
+	if err != nil {
+		return nil, fmt.Errorf("partitioned fit %s: %v", what, err)
+	}
+	pr.evals++
+	if pr.log != nil {
+		fmt.Fprintf(pr.log, "queue: %s: evaluation %d (%s) over %d partitions\n", what, pr.evals, detail, len(pr.parts))
+	}
+	for _, r := range replies {
+		if r.Err != "" {
+			return nil, errors.New(r.Err)
+		}
+	}
+	return replies, nil
+}
+
+// sums sums model m's log-likelihood and derivatives over the partitions,
+// their rows with the group indicators of cut when it is set.
+func (pr *partRun) sums(m fit.Model, cut *fit.ScoreQuery) func(theta []float64, order int) (*fit.Sums, error) {
+	key, err := pr.cutKey(m, cut)
+	return func(theta []float64, order int) (*fit.Sums, error) {
+		if err != nil {
+			return nil, err
+		}
+		replies, err := pr.eval(KindSums, evalID(key, KindSums, theta, order), m.Name(), fmt.Sprintf("%s, order %d", KindSums, order), func(PartitionRef) *PartitionTask {
+			return &PartitionTask{Model: m, Theta: append([]float64(nil), theta...), Order: order, Score: cut}
+		})
 		if err != nil {
 			return nil, err
 		}
 		total := &fit.Sums{}
 		for i, r := range replies {
 			if r.Sums == nil {
-				return nil, fmt.Errorf("partition %s: the worker %s returned no sums", parts[i].Name, r.Worker)
+				return nil, fmt.Errorf("partition %s: the worker %s returned no sums", pr.parts[i].Name, r.Worker)
 			}
 			total.Add(r.Sums)
 		}
 		return total, nil
 	}
-	diag := func(theta []float64) (int, float64, error) {
-		replies, err := eval(KindDiag, theta, 0)
+}
+
+// diag is the fitted-probability diagnostics of model m over the
+// partitions (with cut as for sums).
+func (pr *partRun) diag(m fit.Model, cut *fit.ScoreQuery) func(theta []float64) (int, float64, error) {
+	key, err := pr.cutKey(m, cut)
+	return func(theta []float64) (int, float64, error) {
+		if err != nil {
+			return 0, 0, err
+		}
+		replies, err := pr.eval(KindDiag, evalID(key, KindDiag, theta, 0), m.Name(), KindDiag+", order 0", func(PartitionRef) *PartitionTask {
+			return &PartitionTask{Model: m, Theta: append([]float64(nil), theta...), Score: cut}
+		})
 		if err != nil {
 			return 0, 0, err
 		}
@@ -138,7 +212,42 @@ func FitPartitioned(ctx context.Context, c *Client, parts []PartitionRef, whole 
 		}
 		return neg, minP, nil
 	}
-	return fit.FitFromSums(whole, m, sums, diag, opt.Fit)
+}
+
+// cutKey names the fit of model m over the partitions with cut's group
+// indicators (the fit's own key without a cut).
+func (pr *partRun) cutKey(m fit.Model, cut *fit.ScoreQuery) ([]byte, error) {
+	if cut == nil {
+		return pr.key, nil
+	}
+	return contentKey(pr.key, "lipsitz refit", m, cut)
+}
+
+// Ask, Sums and Diag answer the questions of fit.LipsitzOverParts.
+func (pr *partRun) Ask(q *fit.ScoreQuery) ([]*fit.ScoreAnswer, error) {
+	key, err := contentKey(pr.key, "scores", q)
+	if err != nil {
+		return nil, err
+	}
+	replies, err := pr.eval(KindScores, evalID(key, KindScores, nil, 0), q.Model.Name(), "Lipsitz test: "+KindScores+" "+string(q.Step), func(PartitionRef) *PartitionTask {
+		return &PartitionTask{Model: q.Model, Theta: q.Estimates, Score: q}
+	})
+	if err != nil {
+		return nil, err
+	}
+	out := make([]*fit.ScoreAnswer, len(replies))
+	for i, r := range replies {
+		out[i] = r.Scores
+	}
+	return out, nil
+}
+
+func (pr *partRun) Sums(cut *fit.ScoreQuery, m fit.Model, theta []float64, order int) (*fit.Sums, error) {
+	return pr.sums(m, cut)(theta, order)
+}
+
+func (pr *partRun) Diag(cut *fit.ScoreQuery, m fit.Model, theta []float64) (int, float64, error) {
+	return pr.diag(m, cut)(theta)
 }
 
 // evalID names one evaluation by its content: the fit, the kind, the order

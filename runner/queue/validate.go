@@ -58,7 +58,7 @@ func checkReply(t *Task, r *Reply) error {
 		return fmt.Errorf("the reply is for job %.12s/%d (%s), not %.12s/%d (%s)", r.Batch, r.Index, r.ID, t.Batch, t.Index, t.ID)
 	}
 	if r.Err != "" {
-		if r.Result != nil || r.Sums != nil {
+		if r.Result != nil || r.Sums != nil || r.Scores != nil {
 			return errors.New("an error reply that also carries a result")
 		}
 		if len(r.Err) > maxErrText {
@@ -88,6 +88,13 @@ func checkReply(t *Task, r *Reply) error {
 	case KindDiag:
 		if r.Result != nil || r.Sums != nil || r.Negative < 0 || math.IsNaN(r.MinProb) || r.MinProb > 1 {
 			return fmt.Errorf("malformed diagnostics (%d negative rows, smallest probability %g)", r.Negative, r.MinProb)
+		}
+	case KindScores:
+		if r.Scores == nil || r.Result != nil || r.Sums != nil {
+			return errors.New(`an "ok" reply without the partition's answer`)
+		}
+		if err := r.Scores.CheckShape(t.Part.Score, t.Part.J); err != nil {
+			return fmt.Errorf("the partition's answer is malformed: %v", err)
 		}
 	default:
 		return fmt.Errorf("a reply to a job of unknown kind %q", t.Kind)

@@ -1,0 +1,161 @@
+package fit
+
+import (
+	"math"
+	"slices"
+	"testing"
+)
+
+// localParts answers the queries of LipsitzOverParts from partitions
+// held here, as workers answer them for their parts.
+type localParts struct {
+	parts []*Data
+	asked int // queries of the cut and the table
+}
+
+func (l *localParts) Ask(q *ScoreQuery) ([]*ScoreAnswer, error) {
+	l.asked++
+	var out []*ScoreAnswer
+	for _, p := range l.parts {
+		a, err := q.Answer(p)
+		if err != nil {
+			return nil, err
+		}
+		if err := a.CheckShape(q, p.J); err != nil {
+			return nil, err
+		}
+		out = append(out, a)
+	}
+	return out, nil
+}
+
+func (l *localParts) Sums(cut *ScoreQuery, m Model, theta []float64, order int) (*Sums, error) {
+	total := &Sums{}
+	for _, p := range l.parts {
+		d, err := cut.Indicators(p)
+		if err != nil {
+			return nil, err
+		}
+		s, err := PartitionSums(d, m, theta, order)
+		if err != nil {
+			return nil, err
+		}
+		total.Add(s)
+	}
+	return total, nil
+}
+
+func (l *localParts) Diag(cut *ScoreQuery, m Model, theta []float64) (int, float64, error) {
+	neg, minP := 0, math.Inf(1)
+	for _, p := range l.parts {
+		d, err := cut.Indicators(p)
+		if err != nil {
+			return 0, 0, err
+		}
+		k, mp, err := PartitionDiagnostics(d, m, theta)
+		if err != nil {
+			return 0, 0, err
+		}
+		neg += k
+		minP = math.Min(minP, mp)
+	}
+	return neg, minP, nil
+}
+
+// The Lipsitz test over parts groups the rows as LipsitzTest groups them
+// on all rows, row for row, and gives its statistic: without weights,
+// with whole weights and with other weights, the cut from one round of
+// rows or from several rounds of counts (General Social Survey extract,
+// Long 1997; the weights invented).
+func TestLipsitzOverPartsEqualsLocal(t *testing.T) {
+	base := gssData(t)
+	whole := make([]float64, base.N())
+	other := make([]float64, base.N())
+	for i := range whole {
+		whole[i] = float64(1 + i%3)
+		other[i] = 0.25 + float64(i%5)/3
+	}
+	for _, weights := range [][]float64{nil, whole, other} {
+		d := *base
+		d.Weights = weights
+		for _, m := range metaModels[:2] {
+			r := fitOK(t, &d, m)
+			local, err := LipsitzTest(&d, r, 0, Options{})
+			if err != nil || !local.Test.OK {
+				t.Fatalf("%s: local test %v %+v", m.Name(), err, local)
+			}
+			for _, fine := range []bool{false, true} {
+				parts, w := splitParts(&d, 3)
+				lp := &localParts{parts: parts}
+				b, g := rangeBuckets, gatherBelow
+				if fine {
+					// Small ranges and buckets: several rounds of counts.
+					rangeBuckets, gatherBelow = 4, 8
+				}
+				got, err := LipsitzOverParts(r, w, lp, 0, Options{})
+				rangeBuckets, gatherBelow = b, g
+				if err != nil {
+					t.Fatalf("%s: %v", m.Name(), err)
+				}
+				name := m.Name()
+				if weights != nil {
+					name += " weighted"
+				}
+				t.Logf("%s (fine %v): %d queries to the parts; chi2 %.10g here, %.10g over the parts", name, fine, lp.asked, local.Test.Chi2, got.Test.Chi2)
+				lt, gt := local.Table, got.Table
+				cuts, _, err := cutOverParts(ScoreQuery{Model: r.Model, Estimates: r.Estimates}, lp, 0, d.J)
+				_, score, err2 := (&ScoreQuery{Model: r.Model, Estimates: r.Estimates, Step: StepTable}).scores(&d)
+				if err != nil || err2 != nil || !slices.Equal(groupsOf(score, cuts), lt.group) {
+					t.Errorf("%s: the rows' groups under the cut are not LipsitzTest's (%v %v)", name, err, err2)
+				}
+				if gt == nil || gt.Groups != lt.Groups {
+					t.Fatalf("%s: %+v groups, want %d", name, got, lt.Groups)
+				}
+				for g := 0; g < lt.Groups; g++ {
+					// Whole weights add up exactly in any order; others
+					// to rounding.
+					if math.Abs(gt.Weight[g]-lt.Weight[g]) > 1e-12*lt.Weight[g] || weights == nil && gt.Weight[g] != lt.Weight[g] || gt.Low[g] != lt.Low[g] || gt.High[g] != lt.High[g] {
+						t.Errorf("%s group %d: weight %v [%v, %v], want %v [%v, %v]", name, g+1, gt.Weight[g], gt.Low[g], gt.High[g], lt.Weight[g], lt.Low[g], lt.High[g])
+					}
+					for j := range lt.Observed[g] {
+						if math.Abs(gt.Observed[g][j]-lt.Observed[g][j]) > 1e-9*lt.Weight[g] || math.Abs(gt.Expected[g][j]-lt.Expected[g][j]) > 1e-9*lt.Weight[g] {
+							t.Errorf("%s group %d category %d: %v %v, want %v %v", name, g+1, j+1, gt.Observed[g][j], gt.Expected[g][j], lt.Observed[g][j], lt.Expected[g][j])
+						}
+					}
+				}
+				if !got.Test.OK || got.Test.DF != local.Test.DF || math.Abs(got.Test.Chi2-local.Test.Chi2) > 1e-6 {
+					t.Errorf("%s: %+v, want %+v", name, got.Test, local.Test)
+				}
+			}
+		}
+	}
+}
+
+// Rows that share a score stay together over the parts as in one place,
+// and the test says the same where the groups are too few or their
+// indicators a combination of the predictors (General Social Survey
+// extract, Long 1997: predictors with few values).
+func TestLipsitzOverPartsTies(t *testing.T) {
+	rs := loadRef(t, "gsswarm")
+	for _, cols := range [][]string{{"yr89", "male", "white", "ed"}, {"yr89", "male"}, {"male"}} {
+		d := rs.data(cols)
+		m := Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(len(cols), Parallel)}
+		r := fitOK(t, d, m)
+		local, err := LipsitzTest(d, r, 0, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		parts, w := splitParts(d, 4)
+		got, err := LipsitzOverParts(r, w, &localParts{parts: parts}, 0, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		t.Logf("%v: %+v here; %+v over the parts", cols, local.Test, got.Test)
+		if local.Table.Groups != got.Table.Groups || !slices.Equal(local.Table.Weight, got.Table.Weight) {
+			t.Errorf("%v: groups %v, want %v", cols, got.Table.Weight, local.Table.Weight)
+		}
+		if got.Test.OK != local.Test.OK || math.Abs(got.Test.Chi2-local.Test.Chi2) > 1e-6 {
+			t.Errorf("%v: %+v, want %+v", cols, got.Test, local.Test)
+		}
+	}
+}
