@@ -91,6 +91,7 @@ type problem struct {
 	// the parallel columns and are summed by group rather than held in the
 	// block's columns (0: none, or they are held like any column).
 	parInd int
+	parAt  []int    // 0, 1, ..., Kp-1: where gatherRows puts the parallel columns
 	prof   *profile // optional timing of the cross-products
 	// first: the sums of an evaluation at one point, made otherwise
 	// (firstSums); last: the last evaluation to second order (lastSums).
@@ -133,6 +134,7 @@ func newProblem(d *design, m Model, ly *layout, workers int) *problem {
 			}
 		}
 	}
+	p.parAt = upTo(len(p.parCols))
 	if p.workers <= 0 {
 		p.workers = runtime.GOMAXPROCS(0)
 	}
@@ -383,13 +385,15 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 }
 
 // blockColumns fills s.uf with the per-equation columns (Kf x rows) and
-// s.xp with the parallel columns (Kp x rows) of the block, column by
-// column. The parallel columns are left to blockLinear when it reads them
-// from the rows (parFromRows).
+// s.xp with the parallel columns (Kp x rows) of the block; the predictors
+// of x are copied in one sweep over the rows (gatherRows). The parallel
+// columns are left to blockLinear when it reads them from the rows
+// (parFromRows).
 func (p *problem) blockColumns(c *coefs, lo, rows int, s *scratch) {
 	d := p.d
 	w := d.width()
 	x := d.x[lo*w : (lo+rows)*w]
+	var at, from []int // the predictors of x among the columns: where they go, where they are
 	for j, col := range p.freeCols {
 		dst := s.uf[j*rows : (j+1)*rows]
 		switch col.kind {
@@ -398,7 +402,11 @@ func (p *problem) blockColumns(c *coefs, lo, rows int, s *scratch) {
 				dst[i] = 1
 			}
 		case predictorColumn:
-			p.column(dst, x, lo, col.index)
+			if col.index < w {
+				at, from = append(at, j), append(from, col.index)
+			} else {
+				p.column(dst, x, lo, col.index)
+			}
 		default:
 			buf := make([]float64, d.K)
 			for i := range dst {
@@ -406,12 +414,85 @@ func (p *problem) blockColumns(c *coefs, lo, rows int, s *scratch) {
 			}
 		}
 	}
+	gatherRows(s.uf, at, x, w, rows, from, nil, nil)
 	if p.parFromRows() {
 		return
 	}
 	for j, k := range p.parCols[:len(p.parCols)-p.parInd] {
 		p.column(s.xp[j*rows:(j+1)*rows], x, lo, k)
 	}
+}
+
+// gatherRows copies the columns from of the block's rows x (row-major, w
+// values a row, rows rows) into dst, column from[j] to dst[at[j]*rows:],
+// eight rows at a time: each row is read once, and a column's values of the
+// eight rows are one contiguous store. With e (rows values) it also forms
+// each row's e_i = sum_j b_j x_i,from[j], the terms added to 0 in the
+// order of from, as axpy over the columns would.
+func gatherRows(dst []float64, at []int, x []float64, w, rows int, from []int, b, e []float64) {
+	at = at[:len(from)]
+	if e != nil {
+		b = b[:len(from)]
+	}
+	i := 0
+	for ; i+8 <= rows; i += 8 {
+		r0 := x[i*w : (i+1)*w]
+		r1 := x[(i+1)*w : (i+2)*w][:len(r0)]
+		r2 := x[(i+2)*w : (i+3)*w][:len(r0)]
+		r3 := x[(i+3)*w : (i+4)*w][:len(r0)]
+		r4 := x[(i+4)*w : (i+5)*w][:len(r0)]
+		r5 := x[(i+5)*w : (i+6)*w][:len(r0)]
+		r6 := x[(i+6)*w : (i+7)*w][:len(r0)]
+		r7 := x[(i+7)*w : (i+8)*w][:len(r0)]
+		if e == nil {
+			for j, k := range from {
+				v := (*[8]float64)(dst[at[j]*rows+i:])
+				v[0], v[1], v[2], v[3], v[4], v[5], v[6], v[7] = r0[k], r1[k], r2[k], r3[k], r4[k], r5[k], r6[k], r7[k]
+			}
+			continue
+		}
+		var e0, e1, e2, e3, e4, e5, e6, e7 float64
+		for j, k := range from {
+			v := (*[8]float64)(dst[at[j]*rows+i:])
+			bj := b[j]
+			x0, x1, x2, x3 := r0[k], r1[k], r2[k], r3[k]
+			v[0], v[1], v[2], v[3] = x0, x1, x2, x3
+			e0 += bj * x0
+			e1 += bj * x1
+			e2 += bj * x2
+			e3 += bj * x3
+			x4, x5, x6, x7 := r4[k], r5[k], r6[k], r7[k]
+			v[4], v[5], v[6], v[7] = x4, x5, x6, x7
+			e4 += bj * x4
+			e5 += bj * x5
+			e6 += bj * x6
+			e7 += bj * x7
+		}
+		v := (*[8]float64)(e[i:])
+		v[0], v[1], v[2], v[3], v[4], v[5], v[6], v[7] = e0, e1, e2, e3, e4, e5, e6, e7
+	}
+	for ; i < rows; i++ {
+		r := x[i*w : (i+1)*w]
+		var ei float64
+		for j, k := range from {
+			dst[at[j]*rows+i] = r[k]
+			if e != nil {
+				ei += b[j] * r[k]
+			}
+		}
+		if e != nil {
+			e[i] = ei
+		}
+	}
+}
+
+// upTo is 0, 1, ..., n-1.
+func upTo(n int) []int {
+	s := make([]int, n)
+	for i := range s {
+		s[i] = i
+	}
+	return s
 }
 
 // column fills dst with column k of the block's rows x (from row lo): a
@@ -435,7 +516,7 @@ func (p *problem) column(dst, x []float64, lo, k int) {
 
 // parFromRows reports whether the parallel columns held in the blocks are
 // all predictors of x (no indicator among them): then blockLinear copies
-// them into the block row by row and forms x'b as it goes.
+// them into the block and forms x'b in the same sweep (gatherRows).
 func (p *problem) parFromRows() bool {
 	w := p.d.width()
 	for _, k := range p.parCols[:len(p.parCols)-p.parInd] {
@@ -458,27 +539,12 @@ func (p *problem) blockLinear(c *coefs, lo, rows int, s *scratch) {
 		e = s.eta[:rows]
 	}
 	kp0 := len(c.bp) - p.parInd
-	if p.parFromRows() {
-		// Eight rows at a time (one cache line of each column): their
-		// parallel values go to their columns and into x'b, summed in the
-		// order of the columns as below. (Row by row, the writes to columns
-		// 32 KB apart evict one another from the cache.)
+	if p.parFromRows() && kp0 > 0 {
+		// The parallel values go to their columns and into x'b in one
+		// sweep over the rows, summed in the order of the columns as below.
 		d := p.d
 		w := d.width()
-		x := d.x[lo*w : (lo+rows)*w]
-		cols, bp := p.parCols[:kp0], c.bp[:kp0]
-		for i0 := 0; i0 < rows; i0 += 8 {
-			i1 := min(i0+8, rows)
-			ei := e[i0:i1]
-			clear(ei)
-			for j, k := range cols {
-				dst := s.xp[j*rows+i0 : j*rows+i1]
-				for i := range dst {
-					dst[i] = x[(i0+i)*w+k]
-				}
-				axpy(ei, bp[j], dst)
-			}
-		}
+		gatherRows(s.xp, p.parAt, d.x[lo*w:(lo+rows)*w], w, rows, p.parCols[:kp0], c.bp[:kp0], e)
 	} else {
 		clear(e)
 		for j, b := range c.bp[:kp0] {

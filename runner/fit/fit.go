@@ -50,16 +50,10 @@ func (d *Data) at(i, k int) float64 {
 }
 
 // columns fills u (the columns X holds, of rows rows, column-major) with
-// the rows lo..lo+rows-1 of X.
-func (d *Data) columns(lo, rows int, u []float64) {
+// the rows lo..lo+rows-1 of X; all is 0, 1, ..., width-1.
+func (d *Data) columns(lo, rows int, u []float64, all []int) {
 	w := d.width()
-	x := d.X[lo*w : (lo+rows)*w]
-	for k := 0; k < w; k++ {
-		dst := u[k*rows : (k+1)*rows]
-		for i := range dst {
-			dst[i] = x[i*w+k]
-		}
-	}
+	gatherRows(u, all, d.X[lo*w:(lo+rows)*w], w, rows, all, nil, nil)
 }
 
 // screenAbove is ScreenAbove with its default.

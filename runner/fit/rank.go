@@ -194,6 +194,7 @@ func (d *Data) columnSums(workers int, mean []float64, tot float64, base *colSum
 	stripes := (nb + per - 1) / per
 	parts := make([]*colSums, stripes)
 	var bufs sync.Pool // one block's columns, reused across stripes
+	all := upTo(w0)
 	forEach(stripes, workers, func(st int) {
 		c := &colSums{}
 		if mean == nil {
@@ -228,7 +229,7 @@ func (d *Data) columnSums(workers int, mean []float64, tot float64, base *colSum
 			}
 			if base == nil {
 				cols := u[:rows*w0]
-				d.columns(lo, rows, cols)
+				d.columns(lo, rows, cols, all)
 				for k := 0; k < w0; k++ {
 					v := cols[k*rows : (k+1)*rows]
 					for i := range v {
