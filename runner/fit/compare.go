@@ -336,10 +336,10 @@ func adjacentProbs(ps []float64, c int, s, P []float64, derivs bool) (lp float64
 	}
 	sum := 0.0
 	for j := range P[:q+1] {
-		P[j] = math.Exp(s[j])
+		P[j] = fastExp(s[j])
 		sum += P[j]
 	}
-	lp = s[c] - math.Log(sum)
+	lp = s[c] - fastLog(sum)
 	if math.IsNaN(lp) || math.IsInf(lp, 0) {
 		return math.Inf(-1), false, nil, nil
 	}

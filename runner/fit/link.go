@@ -165,7 +165,7 @@ func (l Link) logDensity(z float64) (float64, float64) {
 type logitPoint struct{ z, e, F, Fc float64 }
 
 func newLogitPoint(z float64) logitPoint {
-	e := math.Exp(-math.Abs(z))
+	e := fastExp(-math.Abs(z))
 	p := logitPoint{z: z, e: e, F: 1 / (1 + e)}
 	p.Fc = e * p.F
 	if z < 0 {
@@ -175,15 +175,15 @@ func newLogitPoint(z float64) logitPoint {
 }
 
 // logF is log F(z) = -log(1 + e^-z) = -max(-z, 0) - log1p(e^-|z|).
-func (p logitPoint) logF() float64 { return -math.Log1p(p.e) - max(-p.z, 0) }
+func (p logitPoint) logF() float64 { return -fastLog1p(p.e) - max(-p.z, 0) }
 
 // logFc is log(1 - F(z)) = -log(1 + e^z) = -max(z, 0) - log1p(e^-|z|).
-func (p logitPoint) logFc() float64 { return -math.Log1p(p.e) - max(p.z, 0) }
+func (p logitPoint) logFc() float64 { return -fastLog1p(p.e) - max(p.z, 0) }
 
 // logDensity returns log f(z) = log F(z) + log(1 - F(z)) = -|z| -
 // 2 log(1 + e^-|z|) and f'(z)/f(z) = 1 - 2 F(z).
 func (p logitPoint) logDensity() (float64, float64) {
-	return -math.Abs(p.z) - 2*math.Log1p(p.e), p.Fc - p.F
+	return -math.Abs(p.z) - 2*fastLog1p(p.e), p.Fc - p.F
 }
 
 // logitTails sums the log-tails of several logit points, log F(z) for
@@ -205,7 +205,7 @@ func (s *logitTails) add(p logitPoint, upper bool) {
 }
 
 // sum is the sum of the log-tails added.
-func (s *logitTails) sum() float64 { return -s.shift - math.Log1p(s.t) }
+func (s *logitTails) sum() float64 { return -s.shift - fastLog1p(s.t) }
 
 // logitBetween returns, for a < b under the logit link, log P with
 // P = F(b) - F(a), and f(a)/P and f(b)/P (f = F'), from the two points'
@@ -235,7 +235,7 @@ func logitBetween(pa, pb logitPoint) (lp, ra, rb float64, ok bool) {
 	if !(P >= 0x1p-1000) {
 		return 0, 0, 0, false
 	}
-	return math.Log(P), pa.F / (pb.F * D), pb.Fc / (pa.Fc * D), true
+	return fastLog(P), pa.F / (pb.F * D), pb.Fc / (pa.Fc * D), true
 }
 
 // logitDiff is log(F(b) - F(a)) for b > a under the logit link, from
