@@ -17,6 +17,10 @@ const blockRows = 4096
 // (RowsEvaluated).
 var rowsEvaluated atomic.Int64
 
+// rowsCrossed counts the rows of the evaluations that formed the
+// cross-products of the design's columns (second order, evaluate).
+var rowsCrossed atomic.Int64
+
 // RowsEvaluated is the number of rows over which this process has
 // evaluated a log-likelihood (with or without derivatives), summed over
 // every evaluation: divided by a data set's rows, the number of passes over
@@ -242,6 +246,9 @@ func (p *problem) coefs(theta []float64) *coefs {
 // pieces (2) over all rows; expected=true uses the expected information.
 func (p *problem) evaluate(theta []float64, order int, expected bool) *acc {
 	rowsEvaluated.Add(int64(p.d.n))
+	if order >= 2 {
+		rowsCrossed.Add(int64(p.d.n))
+	}
 	c := p.coefs(theta)
 	nb := (p.d.n + blockRows - 1) / blockRows
 	if nb == 0 {

@@ -85,7 +85,9 @@ func finish(src *source, m Model, ly *layout, st newtonState, opt Options) (*Res
 	r := src.newResult(m, ly, st)
 	var err error
 	switch {
-	case st.minKnown && src.positive:
+	case st.minKnown && (src.positive || opt.maximumOnly):
+		// (A fit asked for its maximum alone does not count the rows
+		// with a negative category probability.)
 		r.MinFittedProb = math.Exp(st.minLogP)
 	case st.minKnown && src.negatives != nil && !math.IsInf(st.ll, -1):
 		r.MinFittedProb, r.NegativeRows = math.Exp(st.minLogP), src.negatives(st.theta)
@@ -114,6 +116,10 @@ func finish(src *source, m Model, ly *layout, st newtonState, opt Options) (*Res
 		r.Message = fmt.Sprintf("%d of %d rows have a negative predicted category probability (crossing cumulative probabilities)", r.NegativeRows, r.NRows)
 	}
 	r.setCriteria(st.ll)
+	if opt.maximumOnly {
+		// The maximized log-likelihood alone: no covariance.
+		return r, nil
+	}
 	r.CovType = covarianceType(opt)
 	if r.CovType == Expected {
 		info = negated(src.expected(st.theta))

@@ -100,6 +100,11 @@ type Options struct {
 	// Stepwise makes before it tests (robust or cluster-robust errors).
 	// Fit itself ignores it.
 	Sandwich func(*Result) error `json:"-"`
+	// maximumOnly asks for the maximized log-likelihood alone (a refit
+	// that only enters a likelihood-ratio statistic, such as LipsitzTest's):
+	// a model without constrained predictors is then iterated by
+	// maximumLoop and finished without a covariance (finish).
+	maximumOnly bool
 }
 
 // Status of a fit.
@@ -267,7 +272,9 @@ func fitChecked(d *Data, m Model, opt Options, sh *shared) (res *Result, err err
 		return nil, inputErr("start has %d values for %d parameters", len(start), len(ly.params))
 	}
 	if len(ly.groups) > 0 {
-		// Constrained predictors: several starts, the best kept.
+		// Constrained predictors: several starts, the best kept (finished
+		// with their covariance, which the normalizations read).
+		opt.maximumOnly = false
 		return multiStart(d, m, ly, pr, opt, sh)
 	}
 	if start == nil {
@@ -280,7 +287,12 @@ func fitChecked(d *Data, m Model, opt Options, sh *shared) (res *Result, err err
 			}
 		}
 	}
-	st := pr.newton(start, opt.MaxIter, opt.Scoring)
+	var st newtonState
+	if opt.maximumOnly {
+		st = maximumLoop(start, opt.MaxIter, pr.evaluator(opt.Scoring))
+	} else {
+		st = pr.newton(start, opt.MaxIter, opt.Scoring)
+	}
 	src := localSource(d, pr, sd)
 	return finish(src, m, ly, st, opt)
 }

@@ -146,19 +146,7 @@ func LipsitzTest(d *Data, r *Result, groups int, opt Options) (*Lipsitz, error) 
 		return out, nil
 	}
 	// Phase 4: the model with group indicators.
-	ad, am, start, err := withIndicators(d, r, t)
-	if err != nil {
-		return nil, err
-	}
-	opt.Start = start
-	opt.Sandwich = nil
-	// X's rank sums from the fit of r, and the first evaluation's sums
-	// from its last (refitsums.go).
-	var first *firstSums
-	if r.last != nil {
-		first = &firstSums{theta: start, base: r.last}
-	}
-	full, err := fitFromWith(ad, am, opt, r.rank, first)
+	full, err := lipsitzRefit(d, r, t, opt)
 	if err != nil {
 		if strings.Contains(err.Error(), "collinear") {
 			out.Test = failedTest("lipsitz", "not defined for these data: the score groups coincide with values of the predictors (too few distinct predictor patterns for %d groups), so their indicators are a combination of the predictors (%v)", G, err)
@@ -170,6 +158,26 @@ func LipsitzTest(d *Data, r *Result, groups int, opt Options) (*Lipsitz, error) 
 	out.Test = LRTest(r, full)
 	out.Test.Name = "lipsitz"
 	return out, nil
+}
+
+// lipsitzRefit fits the model of r with the indicators of t's groups
+// 2..G on r's data d, from r's estimates and 0 for the indicators, for
+// its maximized log-likelihood alone (Options.maximumOnly): X's rank sums
+// come from the fit of r, and the first evaluation's sums from its last
+// (refitsums.go).
+func lipsitzRefit(d *Data, r *Result, t *ScoreGroups, opt Options) (*Result, error) {
+	ad, am, start, err := withIndicators(d, r, t)
+	if err != nil {
+		return nil, err
+	}
+	opt.Start = start
+	opt.Sandwich = nil
+	opt.maximumOnly = true
+	var first *firstSums
+	if r.last != nil {
+		first = &firstSums{theta: start, base: r.last}
+	}
+	return fitFromWith(ad, am, opt, r.rank, first)
 }
 
 // withIndicators is the data and model of fit r's Lipsitz refit, with the

@@ -257,3 +257,114 @@ func dot(a, b []float64) float64 {
 	}
 	return s
 }
+
+// maximumDecrement is the Newton decrement at which the iterations of a
+// fit asked for its maximized log-likelihood alone (maximumLoop) stop: what
+// is left to gain is then about half of it, well below the 1e-6 to which
+// log-likelihoods are reported.
+const maximumDecrement = 1e-7
+
+// reuseInfoBelow is the Newton decrement, relative to |LL|, below which
+// maximumLoop keeps the information it has rather than evaluating it at
+// the next point: near the maximum the information changes little, and a
+// step with the kept one still shrinks the decrement by about the square
+// of that change.
+const reuseInfoBelow = 1e-3
+
+// maximumLoop is the Newton engine of a fit whose only product is its
+// maximized log-likelihood (Options.maximumOnly): the iterations of
+// newtonLoop, except that near the maximum (a decrement below
+// reuseInfoBelow |LL|) the next point is evaluated for the score alone and
+// the step taken with the information already at hand, as long as each
+// such step shrinks the decrement a hundredfold; it converges when the
+// decrement is at most maximumDecrement, the log-likelihood at that point
+// being the maximum to within about half of it. A step that does not raise
+// the log-likelihood hands the iterations to newtonLoop from the point
+// reached. The state's second derivatives are those of the information
+// used last (evaluated at an earlier point when kept).
+func maximumLoop(theta0 []float64, maxIter int, ev evalFunc) newtonState {
+	theta := append([]float64(nil), theta0...)
+	st := newtonState{}
+	a := ev(theta, 2)
+	if a.bad {
+		st.theta, st.ll, st.reason = theta, math.Inf(-1), "the starting values give a zero probability to an observed category"
+		return st
+	}
+	ll, g, H := a.ll, a.g, a.H
+	fresh := true // H was evaluated at theta
+	prevDec := math.Inf(1)
+	for it := 0; ; it++ {
+		st.theta, st.ll, st.grad, st.hess, st.iters = theta, ll, g, H, it
+		st.minLogP, st.minKnown = a.minLogP, a.minKnown
+		d, dec, pd := newtonDirection(H, g)
+		st.decrement = dec
+		if !pd {
+			st.repaired++
+		}
+		if pd && dec <= maximumDecrement {
+			st.converged, st.reason = true, "converged"
+			return st
+		}
+		if it >= maxIter {
+			st.reason = "iteration limit reached"
+			return st
+		}
+		scale := math.Max(1, math.Abs(ll))
+		if !fresh && (!pd || dec > 1e-2*prevDec) {
+			// The kept information no longer gives fast steps: evaluate it here.
+			if a = ev(theta, 2); a.bad {
+				st.reason = "the log-likelihood could not be evaluated"
+				return st
+			}
+			g, H, fresh = a.g, a.H, true
+			continue
+		}
+		order := 1
+		if !pd || dec > reuseInfoBelow*scale {
+			order = 2
+		}
+		b := ev(addScaled(theta, d, 1), order)
+		if b.bad || !(b.ll >= ll-1e-12*scale) {
+			// Steps shorter than the full one: the ordinary iterations.
+			rest := newtonLoop(theta, maxIter-it, ev)
+			rest.iters += it
+			return rest
+		}
+		if order == 2 {
+			H = b.H
+		} else {
+			H = secantUpdate(H, d, g, b.g)
+		}
+		theta, ll, g, a = addScaled(theta, d, 1), b.ll, b.g, b
+		fresh, prevDec = order == 2, dec
+	}
+}
+
+// secantUpdate is the second derivatives H updated (BFGS, on the
+// information -H) so that they map the step s to the change of the score
+// from g0 to g1; H itself when the change does not keep the information
+// positive definite.
+func secantUpdate(H, s, g0, g1 []float64) []float64 {
+	P := len(s)
+	y := make([]float64, P) // the information's change along s: -(g1 - g0)
+	for i := range y {
+		y[i] = g0[i] - g1[i]
+	}
+	Bs := make([]float64, P) // -H s
+	for i := 0; i < P; i++ {
+		for j := 0; j < P; j++ {
+			Bs[i] -= H[i*P+j] * s[j]
+		}
+	}
+	ys, sBs := dot(y, s), dot(s, Bs)
+	if !(ys > 0) || !(sBs > 0) {
+		return H
+	}
+	out := make([]float64, P*P)
+	for i := 0; i < P; i++ {
+		for j := 0; j < P; j++ {
+			out[i*P+j] = H[i*P+j] - y[i]*y[j]/ys + Bs[i]*Bs[j]/sBs
+		}
+	}
+	return out
+}

@@ -150,7 +150,7 @@ func (s *rankSums) of(d *Data) bool {
 }
 
 // firstOf is a pointer to the first element of v (nil when v is empty).
-func firstOf(v []float64) *float64 {
+func firstOf[T any](v []T) *T {
 	if len(v) == 0 {
 		return nil
 	}

@@ -1,6 +1,9 @@
 package fit
 
-import "math"
+import (
+	"math"
+	"weak"
+)
 
 // The first evaluation of the Lipsitz refit from the fit it extends. The
 // refit starts at the fit's estimates with zero slopes for its group
@@ -16,16 +19,30 @@ import "math"
 // the last bit.
 
 // lastSums is an evaluation to second order: the point, whether the
-// information was expected, the sums, and the shape of the design they
-// were formed on (its rows, columns and indicator columns, and whether
-// rows were merged; not the design, which a fit keeping this must not
-// keep alive).
+// information was expected, the sums, and what identifies the rows they
+// were formed on (rowsOf).
 type lastSums struct {
-	theta            []float64
-	expected         bool
-	a                *acc
-	n, width, groups int
-	merged           bool
+	theta    []float64
+	expected bool
+	a        *acc
+	rows     rowsID
+}
+
+// rowsID identifies the rows of a design without keeping them alive: its
+// arrays of predictors, categories, weights and offsets, held weakly (a
+// fit keeping this must not keep its data), and its shape. A design whose
+// rows were merged (compressed) has arrays of its own, so it is never
+// taken for the rows it merged.
+type rowsID struct {
+	x, w, off weak.Pointer[float64]
+	y         weak.Pointer[int]
+	n, width  int
+}
+
+// rowsOf identifies the rows of d.
+func rowsOf(d *design) rowsID {
+	return rowsID{x: weak.Make(firstOf(d.x)), w: weak.Make(firstOf(d.w)), off: weak.Make(firstOf(d.off)),
+		y: weak.Make(firstOf(d.y)), n: d.n, width: d.width()}
 }
 
 // firstSums gives the sums of a refit's first evaluation at theta from
@@ -48,8 +65,7 @@ func (p *problem) evaluateKept(theta []float64, order int, expected bool) *acc {
 	if order >= 2 && !a.bad {
 		p.lastMu.Lock()
 		d := p.d
-		p.last = &lastSums{theta: append([]float64(nil), theta...), expected: expected, a: a,
-			n: d.n, width: d.width(), groups: d.groups, merged: d.mult != nil}
+		p.last = &lastSums{theta: append([]float64(nil), theta...), expected: expected, a: a, rows: rowsOf(d)}
 		p.lastMu.Unlock()
 	}
 	return a
@@ -57,8 +73,9 @@ func (p *problem) evaluateKept(theta []float64, order int, expected bool) *acc {
 
 // takeFirst returns p.first, and forgets it, when it gives the sums of an
 // evaluation of p at theta to this order: second order with the same kind
-// of information, on a design of the same rows (none merged), the
-// indicators held by group and parallel, no constrained predictors.
+// of information, formed on the rows of p's design (the same arrays, none
+// merged: rowsOf), the indicators held by group and parallel, no
+// constrained predictors.
 func (p *problem) takeFirst(theta []float64, order int, expected bool) *firstSums {
 	p.lastMu.Lock()
 	defer p.lastMu.Unlock()
@@ -69,7 +86,7 @@ func (p *problem) takeFirst(theta []float64, order int, expected bool) *firstSum
 	p.first = nil
 	b, d := f.base, p.d
 	if b.expected != expected || b.a.order != 2 || d.groups == 0 || p.parInd != d.groups || len(p.ly.groups) > 0 ||
-		d.mult != nil || b.merged || b.n != d.n || b.groups != 0 || b.width != d.width() {
+		d.mult != nil || b.rows != rowsOf(d) {
 		return nil
 	}
 	kf, kp0 := len(p.freeCols), len(p.parCols)-p.parInd
