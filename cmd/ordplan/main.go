@@ -220,8 +220,8 @@ func defineFitFlags(fs *flag.FlagSet) *fitFlags {
 		baseline:    fs.String("baseline", "", "also show an adjacent nonparallel logit as baseline-category logits against this category"),
 		level:       fs.Float64("confidence-level", 0.95, "confidence level of the intervals"),
 		asJSON:      fs.Bool("json", false, "print one JSON object instead of the table"),
-		queue:       addQueueFlags(fs, "with --parts: the NATS JetStream server whose workers hold the parts and sum the fit over them", true),
-		parts:       fs.String("parts", "", "the data held as parts instead of --data: files with the same columns, comma separated (names or patterns, parts/*.csv: its files in name order), read in order as one data set (as the plan key data.parts); with --queue, workers hold the parts and sum the fit over them"),
+		queue:       addQueueFlags(fs, "with --parts: the NATS JetStream server whose workers hold the parts and sum the fit and its Lipsitz test over them", true),
+		parts:       fs.String("parts", "", "the data held as parts instead of --data: files with the same columns, comma separated (names or patterns, parts/*.csv: its files in name order), read in order as one data set (as the plan key data.parts); with --queue, workers hold the parts and sum the fit and its Lipsitz test over them"),
 	}
 	fs.TextVar(&f.approach, "approach", fit.Cumulative, "how categories are compared: "+fit.ComparisonWords.OrList())
 	fs.TextVar(&f.link, "link", fit.Logit, "link: "+fit.LinkWords.OrList())

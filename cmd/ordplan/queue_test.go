@@ -32,6 +32,8 @@ const (
 	// holdEnv makes a worker child hold each job it takes this long before
 	// computing it, so that a test can kill it while it holds one.
 	holdEnv = "ORDPLAN_TEST_WORKER_HOLD"
+	// holdKindEnv limits holdEnv to the jobs of one kind.
+	holdKindEnv = "ORDPLAN_TEST_WORKER_HOLD_KIND"
 )
 
 func TestMain(m *testing.M) {
@@ -61,7 +63,7 @@ func commandForTest(args []string) int {
 		if err != nil {
 			return fail(os.Stderr, err)
 		}
-		return runWorker(args[1:], os.Stdout, os.Stderr, hold)
+		return runWorker(args[1:], os.Stdout, os.Stderr, hold, os.Getenv(holdKindEnv))
 	}
 	return run(args, os.Stdout, os.Stderr)
 }
@@ -327,17 +329,7 @@ func TestFitPartitionsThroughWorkers(t *testing.T) {
 	url := localserver.ForTest(t)
 	startWorkerProc(t, url, "p1")
 	startWorkerProc(t, url, "p2")
-	src, err := os.ReadFile(filepath.Join(refDir, "gsswarm.csv"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	dir := t.TempDir()
-	var parts []string
-	for p, raw := range splitInTurn(src, 3) {
-		path := filepath.Join(dir, "part"+strconv.Itoa(p)+".csv")
-		os.WriteFile(path, raw, 0o644)
-		parts = append(parts, path)
-	}
+	parts := gssParts(t, 3)
 	args := []string{"fit", "--outcome", "warm", "--categories", "1,2,3,4", "--predictors", "yr89,male,white,age,ed,prst", "--nonparallel", "yr89,male", "--json"}
 	local, errs, code := runCLI(append(args, "--data", filepath.Join(refDir, "gsswarm.csv"))...)
 	if code != 0 {
@@ -380,15 +372,7 @@ func TestFitPartitionsThroughWorkers(t *testing.T) {
 		if code != 0 {
 			t.Fatalf("%v: exit %d: %s", extra, code, errs)
 		}
-		lines := func(out string) (same []string) {
-			for _, l := range strings.Split(out, "\n") {
-				if !strings.HasPrefix(l, "Data ") && !strings.HasPrefix(l, "Status ") { // the files; Newton's path
-					same = append(same, l)
-				}
-			}
-			return same
-		}
-		if strings.Join(lines(local), "\n") != strings.Join(lines(dist), "\n") {
+		if sameLines(local) != sameLines(dist) {
 			t.Errorf("%v: the partitioned fit prints otherwise than the local one:\n%s\n---\n%s", extra, local, dist)
 		}
 		if !strings.Contains(dist, "\nLipsitz test (10 groups of predicted score): chi2(9) = ") {
@@ -405,6 +389,69 @@ func TestFitPartitionsThroughWorkers(t *testing.T) {
 		if extra != nil && extra[0] == "--baseline" && !strings.Contains(dist, "Baseline-category form") {
 			t.Errorf("no baseline table over partitions:\n%s", dist)
 		}
+	}
+}
+
+// gssParts writes the General Social Survey extract (Long 1997) as k CSV
+// parts, its rows dealt in turn, and returns their paths.
+func gssParts(t *testing.T, k int) []string {
+	t.Helper()
+	src, err := os.ReadFile(filepath.Join(refDir, "gsswarm.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	var parts []string
+	for p, raw := range splitInTurn(src, k) {
+		path := filepath.Join(dir, "part"+strconv.Itoa(p)+".csv")
+		if err := os.WriteFile(path, raw, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		parts = append(parts, path)
+	}
+	return parts
+}
+
+// sameLines is what ordplan fit prints but the lines that name the data
+// and Newton's path, which a fit over parts prints otherwise.
+func sameLines(out string) string {
+	var same []string
+	for _, l := range strings.Split(out, "\n") {
+		if !strings.HasPrefix(l, "Data ") && !strings.HasPrefix(l, "Status ") {
+			same = append(same, l)
+		}
+	}
+	return strings.Join(same, "\n")
+}
+
+// The Lipsitz test of ordplan fit --parts --queue survives a worker killed
+// while it holds one of the test's jobs (the parts' scores): the job goes
+// to another worker after its ack deadline, and the fit prints what the
+// local fit prints (General Social Survey extract, Long 1997).
+func TestFitPartsLipsitzSurvivesKilledWorker(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts worker processes")
+	}
+	url := localserver.ForTest(t)
+	victim := startProc(t, []string{holdEnv + "=60s", holdKindEnv + "=" + queue.KindScores},
+		"worker", "--queue", url, "--name", "victim", "--jobs", "3", "--ack-wait", "2s", "--cache", t.TempDir())
+	victim.waitLog(t, 20*time.Second, "ready")
+	parts := gssParts(t, 3)
+	args := []string{"fit", "--outcome", "warm", "--categories", "1,2,3,4", "--predictors", "yr89,male,white,age,ed,prst", "--nonparallel", "male"}
+	local, errs, code := runCLI(append(args, "--data", filepath.Join(refDir, "gsswarm.csv"))...)
+	if code != 0 {
+		t.Fatal(errs)
+	}
+	run := runAsync(append(args, "--queue", url, "--parts", strings.Join(parts, ","))...)
+	victim.waitLog(t, 60*time.Second, "holding scores job")
+	victim.kill(t)
+	w1 := startWorkerProc(t, url, "w1")
+	r := waitRun(t, run, 90*time.Second)
+	if sameLines(local) != sameLines(r[0]) || !strings.Contains(r[0], "\nLipsitz test (10 groups of predicted score): chi2(9) = ") {
+		t.Errorf("the fit over parts prints otherwise than the local one:\n%s\n---\n%s", local, r[0])
+	}
+	if !strings.Contains(w1.stderr.String(), "(delivery 2)") {
+		t.Errorf("the killed worker's job was not delivered again:\n%s", w1.stderr.String())
 	}
 }
 
@@ -455,14 +502,7 @@ rules:
   - reject_unconverged: true
   - choose: {by: bic}
 `), 0o644)
-	local, remote := filepath.Join(dir, "local"), filepath.Join(dir, "queue")
-	if out, errs, code := runCLI("run", plan, "--out", local, "--quiet"); code != 0 {
-		t.Fatalf("local run: exit %d: %s %s", code, out, errs)
-	}
-	url := localserver.ForTest(t)
-	startWorkerProc(t, url, "w1")
-	startWorkerProc(t, url, "w2")
-	r := waitRun(t, runAsync("run", plan, "--out", remote, "--queue", url), 120*time.Second)
+	local, remote, r := runHereAndQueued(t, plan, 2)
 	if !strings.Contains(r[1], "cumulative/constrained/logit fitted here, not over the parts: constrained and stereotype models are not summed over parts") ||
 		!regexp.MustCompile(`: [1-9][0-9]* of [0-9]+ fits summed over 3 parts by the workers`).MatchString(r[1]) {
 		t.Errorf("the coordinator's log does not say which fits went over the parts:\n%s", r[1])
@@ -474,8 +514,14 @@ rules:
 	}
 	var dec [2]struct {
 		Outcomes []struct {
-			Chosen *string  `json:"chosen"`
-			Fits   []fitRec `json:"fits"`
+			Chosen  *string  `json:"chosen"`
+			Fits    []fitRec `json:"fits"`
+			Lipsitz struct {
+				Test struct {
+					OK   bool    `json:"ok"`
+					Chi2 float64 `json:"chi2"`
+				} `json:"test"`
+			} `json:"lipsitz"`
 		} `json:"outcomes"`
 	}
 	for i, d := range []string{local, remote} {
@@ -491,6 +537,11 @@ rules:
 	if a.Chosen == nil || b.Chosen == nil || *a.Chosen != *b.Chosen || len(a.Fits) != len(b.Fits) {
 		t.Fatalf("local and queue runs chose differently: %v %v", a.Chosen, b.Chosen)
 	}
+	// The chosen model's Lipsitz test, made here from the parts' rows, on
+	// the fit the workers summed.
+	if !a.Lipsitz.Test.OK || !b.Lipsitz.Test.OK || math.Abs(a.Lipsitz.Test.Chi2-b.Lipsitz.Test.Chi2) > 1e-6 {
+		t.Errorf("Lipsitz test %+v here, %+v over the parts", a.Lipsitz, b.Lipsitz)
+	}
 	for k, f := range a.Fits {
 		g := b.Fits[k]
 		if f.ID != g.ID || math.Abs(f.LogLik-g.LogLik) > 1e-8 || len(f.Estimates) != len(g.Estimates) {
@@ -502,6 +553,77 @@ rules:
 			}
 		}
 	}
+}
+
+// A plan on data held as parts with a categorical predictor runs through
+// the queue and writes the local run's files, byte for byte: its fits
+// take the design's constants and are made by the coordinator from the
+// parts' rows, and so are the Lipsitz and Pulkstenis-Robinson tests
+// (General Social Survey extract, Long 1997).
+func TestQueueRunOverPartsCategorical(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts worker processes")
+	}
+	parts := gssParts(t, 3)
+	dir := filepath.Dir(parts[0])
+	plan := filepath.Join(dir, "plan.yaml")
+	os.WriteFile(plan, []byte(`version: 1
+data:
+  parts: [part0.csv, part1.csv, part2.csv]
+outcomes:
+  - column: warm
+    categories: ["1", "2", "3", "4"]
+predictors: [yr89, male, white, age, ed, prst]
+categorical:
+  male: {levels: ["0", "1"]}
+models:
+  approaches: [cumulative]
+  effects: [parallel, partial]
+  links: [logit]
+  partial: {free: [yr89, male]}
+rules:
+  - reject_unconverged: true
+  - choose: {by: bic}
+`), 0o644)
+	local, remote, _ := runHereAndQueued(t, plan, 1)
+	sameOutputs(t, local, remote)
+	b, err := os.ReadFile(filepath.Join(remote, "decisions.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var dec struct {
+		Outcomes []struct {
+			Lipsitz struct {
+				Test struct {
+					OK bool `json:"ok"`
+				} `json:"test"`
+			} `json:"lipsitz"`
+			PR struct {
+				Pearson struct {
+					OK bool `json:"ok"`
+				} `json:"pearson"`
+			} `json:"pulkstenis_robinson"`
+		} `json:"outcomes"`
+	}
+	if err := json.Unmarshal(b, &dec); err != nil || len(dec.Outcomes) != 1 || !dec.Outcomes[0].Lipsitz.Test.OK || !dec.Outcomes[0].PR.Pearson.OK {
+		t.Errorf("decisions.json without the Lipsitz and Pulkstenis-Robinson tests (%v): %+v", err, dec)
+	}
+}
+
+// runHereAndQueued runs plan here and through a queue of workers worker
+// processes, into folders local and queue beside the plan, and returns
+// them with what the queued run printed.
+func runHereAndQueued(t *testing.T, plan string, workers int) (local, remote string, r [3]string) {
+	t.Helper()
+	local, remote = filepath.Join(filepath.Dir(plan), "local"), filepath.Join(filepath.Dir(plan), "queue")
+	if out, errs, code := runCLI("run", plan, "--out", local, "--quiet"); code != 0 {
+		t.Fatalf("local run: exit %d: %s %s", code, out, errs)
+	}
+	url := localserver.ForTest(t)
+	for w := 1; w <= workers; w++ {
+		startWorkerProc(t, url, "w"+strconv.Itoa(w))
+	}
+	return local, remote, waitRun(t, runAsync("run", plan, "--out", remote, "--queue", url), 120*time.Second)
 }
 
 // splitInTurn deals the rows of CSV text to k parts in turn, each with the

@@ -17,12 +17,13 @@ const workerUsage = "usage: ordplan worker --queue nats://HOST:PORT --queue-secr
 
 // cmdWorker pulls fits from the queue until interrupted.
 func cmdWorker(args []string, stdout, stderr io.Writer) int {
-	return runWorker(args, stdout, stderr, 0)
+	return runWorker(args, stdout, stderr, 0, "")
 }
 
-// runWorker is cmdWorker holding each job it takes for hold before
-// computing it (the tests kill a worker while it holds one).
-func runWorker(args []string, stdout, stderr io.Writer, hold time.Duration) int {
+// runWorker is cmdWorker holding each job it takes (of kind holdKind, or
+// every job when it is empty) for hold before computing it (the tests kill
+// a worker while it holds one).
+func runWorker(args []string, stdout, stderr io.Writer, hold time.Duration, holdKind string) int {
 	fs := newFlags("worker", stderr)
 	qf := addQueueFlags(fs, "NATS URL of a JetStream server, e.g. nats://127.0.0.1:4222 or tls://HOST:4222 (required)", false)
 	url := qf.url
@@ -78,7 +79,7 @@ func runWorker(args []string, stdout, stderr io.Writer, hold time.Duration) int 
 		return fail(stderr, err)
 	}
 	defer done()
-	w := &queue.Worker{Client: c, Name: *name, CacheDir: *cache, Jobs: *jobs, AckWait: *ackWait, Delay: hold,
+	w := &queue.Worker{Client: c, Name: *name, CacheDir: *cache, Jobs: *jobs, AckWait: *ackWait, Delay: hold, DelayKind: holdKind,
 		Limits: queue.Limits{Starts: *maxStarts, Iterations: *maxIter, Predictors: *maxPred, DataBytes: *maxData << 20}}
 	if !*quiet {
 		w.Log = stderr

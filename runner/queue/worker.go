@@ -25,6 +25,8 @@ type Worker struct {
 	// computing it. Test-only: it lets tests kill a worker while it holds a
 	// job and check that in-progress acknowledgements keep a slow job.
 	Delay time.Duration
+	// DelayKind limits Delay to the jobs of one kind ("": every job).
+	DelayKind string
 
 	cache    *dataCache
 	parts    *partitionCache
@@ -112,7 +114,7 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 	w.logf("worker %s: started %s %s (delivery %d)", w.Name, msg.Subject(), t.ID, delivered)
 	start := time.Now()
 	stop := w.keepAlive(msg)
-	if w.Delay > 0 && !sleep(ctx, w.Delay) {
+	if w.Delay > 0 && (w.DelayKind == "" || w.DelayKind == t.Kind) && !w.hold(ctx, t) {
 		stop()
 		msg.Nak()
 		return
@@ -210,6 +212,13 @@ func (w *Worker) keepAlive(msg jetstream.Msg) func() {
 			<-stopped
 		})
 	}
+}
+
+// hold waits Delay before job t is computed, saying so; false when ctx
+// ended first.
+func (w *Worker) hold(ctx context.Context, t *Task) bool {
+	w.logf("worker %s: holding %s job %s for %s", w.Name, t.Kind, t.ID, w.Delay)
+	return sleep(ctx, w.Delay)
 }
 
 func (w *Worker) logf(format string, a ...any) {
