@@ -87,13 +87,9 @@ func (k *kernel) eval(L []float64, c int, g, h []float64) (float64, bool) {
 	switch k.cmp {
 	case Cumulative:
 		return k.cumulative(L, c, g, h)
-	case Stage:
-		if k.backward {
-			return k.stageBackward(L, c, g, h)
-		}
-		return k.stageForward(L, c, g, h)
-	case stackedBinary:
-		return k.stacked(L, c, g, h)
+	case Stage, stackedBinary:
+		lo, hi := k.tailRange(c)
+		return k.tails(L, c, lo, hi, g, h)
 	default:
 		return k.adjacent(L, c, g, h)
 	}
@@ -205,16 +201,17 @@ func log1mexp(x float64) float64 {
 	return math.Log1p(-math.Exp(x))
 }
 
-func (k *kernel) stageForward(L []float64, c int, g, h []float64) (float64, bool) {
-	return k.tails(L, c, 0, min(c+1, k.nEq), g, h)
-}
-
-func (k *kernel) stacked(L []float64, c int, g, h []float64) (float64, bool) {
-	return k.tails(L, c, 0, k.nEq, g, h)
-}
-
-func (k *kernel) stageBackward(L []float64, c int, g, h []float64) (float64, bool) {
-	return k.tails(L, c, max(c-1, 0), k.nEq, g, h)
+// tailRange is the equations lo..hi-1 whose log-tails make log P(y = c)
+// of a stage or stacked kernel: stage forward the equations up to c,
+// backward from c - 1, stacked all.
+func (k *kernel) tailRange(c int) (lo, hi int) {
+	switch {
+	case k.cmp == stackedBinary:
+		return 0, k.nEq
+	case k.backward:
+		return max(c-1, 0), k.nEq
+	}
+	return 0, min(c+1, k.nEq)
 }
 
 // tails is a kernel whose log-probability is a sum of log-tails of the

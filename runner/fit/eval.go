@@ -180,7 +180,7 @@ func (p *problem) newAcc(order int) *acc {
 
 func (a *acc) add(b *acc) {
 	a.ll += b.ll
-	a.minLP = math.Min(a.minLP, b.minLP)
+	a.minLP = min(a.minLP, b.minLP)
 	a.bad = a.bad || b.bad
 	addTo(a.V, b.V)
 	addTo(a.Vp, b.Vp)
@@ -606,6 +606,11 @@ func (p *problem) blockKernels(c *coefs, lo, rows, order int, expected bool, a *
 	if p.ker.cmp == Cumulative && !expected {
 		return p.cumulativeKernels(c, lo, rows, order, a, s)
 	}
+	if !expected {
+		if ok, done := p.logitKernels(c, lo, rows, order, a, s); done {
+			return ok
+		}
+	}
 	var g, h []float64
 	if order >= 1 {
 		g = s.g
@@ -640,7 +645,7 @@ func (p *problem) blockKernels(c *coefs, lo, rows, order int, expected bool, a *
 			return false
 		}
 		a.ll += w * lp
-		a.minLP = math.Min(a.minLP, lp)
+		a.minLP = min(a.minLP, lp)
 		if order >= 1 {
 			for m := 0; m < q; m++ {
 				gs[m*rows+i] = w * g[m]
@@ -710,7 +715,7 @@ func (p *problem) cumulativeKernels(c *coefs, lo, rows, order int, a *acc, s *sc
 				return false
 			}
 			a.ll += wi * t.v
-			a.minLP = math.Min(a.minLP, t.v)
+			a.minLP = min(a.minLP, t.v)
 			// As the general kernel forms them: 0 plus the tail's derivative.
 			if order >= 1 {
 				g[i] = wi * (0 + t.d1)
@@ -725,7 +730,7 @@ func (p *problem) cumulativeKernels(c *coefs, lo, rows, order int, a *acc, s *sc
 			return false
 		}
 		a.ll += wi * md.lp
-		a.minLP = math.Min(a.minLP, md.lp)
+		a.minLP = min(a.minLP, md.lp)
 		if order >= 1 {
 			gs[yi*rows+i] = wi * md.rb
 			gs[(yi-1)*rows+i] = wi * -md.ra

@@ -1,0 +1,133 @@
+package fit
+
+import "math"
+
+// The row kernels of stage, stacked and adjacent models under the logit
+// link with observed derivatives, written straight into the block's
+// columns (as cumulativeKernels for cumulative models): the values of the
+// general kernel (kernel.eval through blockKernels), bit for bit, without
+// its per-row clearing of a dense gradient and Hessian and their copy into
+// the columns (TestBlockKernelsAsGeneral).
+
+// logitKernels reports whether blockKernels takes tailKernels or
+// adjacentKernels, and runs it.
+func (p *problem) logitKernels(c *coefs, lo, rows, order int, a *acc, s *scratch) (ok, done bool) {
+	if p.ker.link != Logit {
+		return false, false
+	}
+	switch {
+	case p.ker.cmp == Stage || p.ker.cmp == stackedBinary:
+		return p.tailKernels(c, lo, rows, order, a, s), true
+	case p.ker.cmp == Adjacent && p.q < 16:
+		return p.adjacentKernels(c, lo, rows, order, a, s), true
+	}
+	return false, false
+}
+
+// kernelColumns clears the block's columns of first (order >= 1) and
+// second (order >= 2) derivatives and returns them with the block's
+// weights (nil: all 1).
+func (p *problem) kernelColumns(lo, rows, order int, s *scratch) (gs, hp, w []float64) {
+	gs, hp = s.gs[:p.q*rows], s.hp[:len(p.pairs)*rows]
+	if order >= 1 {
+		clear(gs)
+	}
+	if order >= 2 {
+		clear(hp)
+	}
+	if p.d.w != nil {
+		w = p.d.w[lo : lo+rows]
+	}
+	return gs, hp, w
+}
+
+// tailKernels is blockKernels for a stage or stacked model under the logit
+// link with observed derivatives: per row the log-tails of the equations
+// kernel.tailRange gives (one exponential each, one log1p for all), the
+// first derivatives -F or 1 - F and the diagonal second derivatives
+// -F (1 - F).
+func (p *problem) tailKernels(c *coefs, lo, rows, order int, a *acc, s *scratch) bool {
+	k, q, es := &p.ker, p.q, s.etaStride
+	y := p.d.y[lo : lo+rows]
+	gs, hp, w := p.kernelColumns(lo, rows, order, s)
+	for i, yi := range y {
+		wi := 1.0
+		if w != nil {
+			wi = w[i]
+		}
+		if wi == 0 {
+			continue
+		}
+		mlo, mhi := k.tailRange(yi)
+		var t logitTails
+		for m := mlo; m < mhi; m++ {
+			pt := newLogitPoint(c.tau[m] - s.eta[m*es+i])
+			upper := m < yi
+			t.add(pt, upper)
+			// As the general kernel forms them: 0 plus the derivative.
+			if order >= 1 {
+				d1 := pt.Fc
+				if upper {
+					d1 = -pt.F
+				}
+				gs[m*rows+i] = wi * (0 + d1)
+			}
+			if order >= 2 {
+				hp[p.pairAt[m*q+m]*rows+i] = wi * (0 + -pt.F*pt.Fc)
+			}
+		}
+		lp := t.sum()
+		if math.IsInf(lp, -1) || math.IsNaN(lp) {
+			return false
+		}
+		a.ll += wi * lp
+		a.minLP = min(a.minLP, lp)
+	}
+	return true
+}
+
+// adjacentKernels is blockKernels for an adjacent model under the logit
+// link with observed derivatives and fewer than 16 equations: per row
+// adjacentProbs, the first derivatives 1 - C_m (m at or above the
+// category) or -C_m, and the second derivatives -C_m (1 - C_l) of every
+// pair m <= l.
+func (p *problem) adjacentKernels(c *coefs, lo, rows, order int, a *acc, s *scratch) bool {
+	q, es := p.q, s.etaStride
+	y := p.d.y[lo : lo+rows]
+	gs, hp, w := p.kernelColumns(lo, rows, order, s)
+	var lbuf, sbuf, pbuf [16]float64
+	L, sv, P := lbuf[:q], sbuf[:q+1], pbuf[:q+1]
+	for i, yi := range y {
+		wi := 1.0
+		if w != nil {
+			wi = w[i]
+		}
+		if wi == 0 {
+			continue
+		}
+		for m := range L {
+			L[m] = c.tau[m] - s.eta[m*es+i]
+		}
+		lp, ok, C, U := adjacentProbs(L, yi, sv, P, order >= 1)
+		if !ok {
+			return false
+		}
+		a.ll += wi * lp
+		a.minLP = min(a.minLP, lp)
+		if order >= 1 {
+			for m := range L {
+				g := -C[m]
+				if m >= yi {
+					g = U[m]
+				}
+				gs[m*rows+i] = wi * g
+			}
+		}
+		if order >= 2 {
+			for pi, pr := range p.pairs {
+				hp[pi*rows+i] = wi * -(C[pr[0]] * U[pr[1]])
+			}
+		}
+	}
+	return true
+}
