@@ -174,6 +174,19 @@ func eiselLemire(mant uint64, exp int, sign uint64) (float64, bool) {
 	return math.Float64frombits(exp2<<52 | m&(1<<52-1) | sign), true
 }
 
+// load8 is the eight bytes of s from i, the first in the lowest byte; the
+// caller makes sure that they are in s (it is not checked).
+func load8(s string, i int) uint64 {
+	return binary.LittleEndian.Uint64(unsafe.Slice(unsafe.StringData(s[i:]), 8))
+}
+
+// nonDigits is a mask of the bytes of w that are not decimal digits: a
+// byte of 0x80 for each (a byte is a digit when its high half is 3 and
+// adding 6 keeps it so).
+func nonDigits(w uint64) uint64 {
+	return (w&0xF0F0F0F0F0F0F0F0 ^ 0x3030303030303030) | ((w+0x0606060606060606)&0xF0F0F0F0F0F0F0F0 ^ 0x3030303030303030)
+}
+
 // word is the eight bytes of s from i, the first in the lowest byte, and
 // a mask of those that are not digits (a byte of 0x80 for each, so that
 // the run of digits is the mask's trailing zeros over eight); a mask of
@@ -182,9 +195,8 @@ func word(s string, i int) (w, nd uint64) {
 	if i+8 > len(s) {
 		return 0, 0
 	}
-	w = binary.LittleEndian.Uint64(unsafe.Slice(unsafe.StringData(s[i:]), 8))
-	// A byte is a digit when its high half is 3 and adding 6 keeps it so.
-	return w, (w&0xF0F0F0F0F0F0F0F0 ^ 0x3030303030303030) | ((w+0x0606060606060606)&0xF0F0F0F0F0F0F0F0 ^ 0x3030303030303030)
+	w = load8(s, i)
+	return w, nonDigits(w)
 }
 
 // digitRun reads the run of decimal digits at s[i:] onto mant (mant*10 +

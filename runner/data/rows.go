@@ -313,12 +313,12 @@ func (t *rowTally) countIncomplete(row cells) {
 func (r *reader) keepRow(t *rowTally, d *Dataset, row cells) {
 	line, _ := r.cr.FieldPos(0)
 	d.X = append(d.X, t.xs...)
-	r.keepValues(t, d, row, line)
+	r.keepValues(t, d, &row, line)
 }
 
 // keepValues appends all but the predictor values of a kept row, which
 // end d.X, to the data set.
-func (r *reader) keepValues(t *rowTally, d *Dataset, row cells, line int) {
+func (r *reader) keepValues(t *rowTally, d *Dataset, row *cells, line int) {
 	opt := &r.opt
 	if len(t.levelSeen) > 0 {
 		xs := d.X[len(d.X)-d.K:]
