@@ -148,11 +148,7 @@ func LipsitzTest(d *Data, r *Result, groups int, opt Options) (*Lipsitz, error) 
 	// Phase 4: the model with group indicators.
 	full, err := lipsitzRefit(d, r, t, opt)
 	if err != nil {
-		if strings.Contains(err.Error(), "collinear") {
-			out.Test = failedTest("lipsitz", "not defined for these data: the score groups coincide with values of the predictors (too few distinct predictor patterns for %d groups), so their indicators are a combination of the predictors (%v)", G, err)
-		} else {
-			out.Test = failedTest("lipsitz", "the model with group indicators could not be fitted: %v", err)
-		}
+		out.Test = refitFailed(G, err)
 		return out, nil
 	}
 	out.Test = LRTest(r, full)
@@ -178,6 +174,15 @@ func lipsitzRefit(d *Data, r *Result, t *ScoreGroups, opt Options) (*Result, err
 		first = &firstSums{theta: start, base: r.last}
 	}
 	return fitFromWith(ad, am, opt, r.rank, first)
+}
+
+// refitFailed is the Lipsitz test whose refit with the indicators of G
+// groups failed with err.
+func refitFailed(G int, err error) Test {
+	if strings.Contains(err.Error(), "collinear") {
+		return failedTest("lipsitz", "not defined for these data: the score groups coincide with values of the predictors (too few distinct predictor patterns for %d groups), so their indicators are a combination of the predictors (%v)", G, err)
+	}
+	return failedTest("lipsitz", "the model with group indicators could not be fitted: %v", err)
 }
 
 // withIndicators is the data and model of fit r's Lipsitz refit, with the

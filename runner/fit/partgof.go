@@ -34,6 +34,9 @@ const (
 	StepSpan   ScoreStep = "span"   // weight, rows and range of the scores
 	StepRanges ScoreStep = "ranges" // counts or rows in ranges of keys
 	StepTable  ScoreStep = "table"  // observed and expected counts by group
+	// StepMoments asks for the moments of the columns with the group
+	// indicators (the refit's rank check).
+	StepMoments ScoreStep = "moments"
 )
 
 // ScoreQuery asks one part of the data about its rows' ordinal scores at
@@ -63,6 +66,61 @@ type ScoreAnswer struct {
 	Keys   [][]uint64   `json:"keys,omitempty"`    // per range of rows: their keys, in row order
 	Weight [][]float64  `json:"weights,omitempty"` // and their weights (none without weights)
 	Table  *ScoreGroups `json:"table,omitempty"`
+	// Moments of the part's columns with the group indicators.
+	Moments *Moments `json:"moments,omitempty"`
+}
+
+// Moments are the total weight, the weighted means and the centred
+// cross-products (K x K) of K columns over a set of rows. The moments of
+// parts merge into those of their union.
+type Moments struct {
+	Weight float64   `json:"weight"`
+	Mean   []float64 `json:"mean"`
+	Cross  []float64 `json:"cross"`
+}
+
+// Merge adds the rows summarized by o to m (the pairwise update of means
+// and cross-products, exact up to rounding).
+func (m *Moments) Merge(o *Moments) {
+	if o.Weight == 0 {
+		return
+	}
+	if m.Weight == 0 {
+		*m = Moments{Weight: o.Weight, Mean: slices.Clone(o.Mean), Cross: slices.Clone(o.Cross)}
+		return
+	}
+	K, tot := len(m.Mean), m.Weight+o.Weight
+	f := m.Weight * o.Weight / tot
+	delta := make([]float64, K)
+	for k := range delta {
+		delta[k] = o.Mean[k] - m.Mean[k]
+	}
+	for a := 0; a < K; a++ {
+		for b := 0; b < K; b++ {
+			m.Cross[a*K+b] += o.Cross[a*K+b] + delta[a]*delta[b]*f
+		}
+	}
+	for k := range m.Mean {
+		m.Mean[k] += delta[k] * o.Weight / tot
+	}
+	m.Weight = tot
+}
+
+// momentsOf is the moments of d's columns (its indicators included), in
+// the two passes of the rank check.
+func momentsOf(d *Data) *Moments {
+	K := len(d.Predictors)
+	cs := d.columnSums(0, nil, 0, nil)
+	m := &Moments{Weight: cs.tot, Mean: make([]float64, K)}
+	if cs.tot == 0 {
+		m.Cross = make([]float64, K*K)
+		return m
+	}
+	for k := range m.Mean {
+		m.Mean[k] = cs.sum[k] / cs.tot
+	}
+	m.Cross = d.columnSums(0, m.Mean, cs.tot, nil).cross
+	return m
 }
 
 // ScoreSpan is the weight, the rows and the range of the score keys of a
@@ -104,7 +162,7 @@ func (q *ScoreQuery) check() error {
 		return errors.New("a score query's cuts are not in order")
 	}
 	switch q.Step {
-	case StepSpan, StepRanges, StepTable:
+	case StepSpan, StepRanges, StepTable, StepMoments:
 	default:
 		return fmt.Errorf("a score query of unknown step %q", q.Step)
 	}
@@ -145,6 +203,8 @@ func (q *ScoreQuery) Answer(d *Data) (*ScoreAnswer, error) {
 		a.ranges(d, score, q.Ranges)
 	case StepTable:
 		a.Table = tableOf(d, score, probs, q.Cuts)
+	case StepMoments:
+		a.Moments = momentsOf(indicatorData(d, groupsOf(score, q.Cuts), len(q.Cuts)+1))
 	}
 	return a, nil
 }
@@ -282,6 +342,11 @@ func (a *ScoreAnswer) CheckShape(q *ScoreQuery, J int) error {
 		if !finite(t.Weight) {
 			return errors.New("a calibration table weight that is not a finite number")
 		}
+	case StepMoments:
+		m := a.Moments
+		if m == nil || len(m.Cross) != len(m.Mean)*len(m.Mean) || !finite(m.Mean) || !finite(m.Cross) || !finite([]float64{m.Weight}) {
+			return errors.New("the moments of the columns without their means and cross-products")
+		}
 	}
 	return nil
 }
@@ -334,13 +399,30 @@ func LipsitzOverParts(r *Result, w Whole, parts ScoreParts, groups int, opt Opti
 		out.Test = failedTest("lipsitz", "every row has the same predicted score, so there is only one group")
 		return out, nil
 	}
-	// Phase 4: the model with group indicators, over the parts.
+	// Phase 4: the model with group indicators, over the parts, after the
+	// rank check of its columns (from the parts' moments).
 	am, start, err := indicatorModel(r, G)
 	if err != nil {
 		return nil, err
 	}
 	aw := w
 	aw.Predictors = append(slices.Clone(w.Predictors), indicatorNames(G)...)
+	mq := base
+	mq.Step = StepMoments
+	if answers, err = parts.Ask(&mq); err != nil {
+		return nil, err
+	}
+	var mo Moments
+	for _, a := range answers {
+		if len(a.Moments.Mean) != len(aw.Predictors) {
+			return nil, fmt.Errorf("the moments of %d columns where there are %d", len(a.Moments.Mean), len(aw.Predictors))
+		}
+		mo.Merge(a.Moments)
+	}
+	if _, err := rankVerdict(aw.Predictors, mo.Mean, mo.Weight, mo.Cross); err != nil {
+		out.Test = refitFailed(G, err)
+		return out, nil
+	}
 	if w.Spread != nil {
 		aw.Spread = indicatorSpread(w.Spread, t)
 	}
@@ -351,7 +433,7 @@ func LipsitzOverParts(r *Result, w Whole, parts ScoreParts, groups int, opt Opti
 		func(theta []float64, order int) (*Sums, error) { return parts.Sums(&cut, am, theta, order) },
 		func(theta []float64) (int, float64, error) { return parts.Diag(&cut, am, theta) }, opt)
 	if err != nil {
-		out.Test = failedTest("lipsitz", "the model with group indicators could not be fitted: %v", err)
+		out.Test = refitFailed(G, err)
 		return out, nil
 	}
 	out.Test = LRTest(r, full)

@@ -154,7 +154,7 @@ func TestLipsitzOverPartsTies(t *testing.T) {
 		if local.Table.Groups != got.Table.Groups || !slices.Equal(local.Table.Weight, got.Table.Weight) {
 			t.Errorf("%v: groups %v, want %v", cols, got.Table.Weight, local.Table.Weight)
 		}
-		if got.Test.OK != local.Test.OK || math.Abs(got.Test.Chi2-local.Test.Chi2) > 1e-6 {
+		if got.Test.OK != local.Test.OK || got.Test.Reason != local.Test.Reason || math.Abs(got.Test.Chi2-local.Test.Chi2) > 1e-6 {
 			t.Errorf("%v: %+v, want %+v", cols, got.Test, local.Test)
 		}
 	}

@@ -66,13 +66,25 @@ func (d *Data) checkRankWith(workers int, base *rankSums) ([]float64, *rankSums,
 		mean[k] = cs.sum[k] / cs.tot
 	}
 	second := d.columnSums(workers, mean, cs.tot, base2)
-	tot, C := cs.tot, second.cross
+	sd, err := rankVerdict(d.Predictors, mean, cs.tot, second.cross)
+	if err != nil {
+		return nil, nil, err
+	}
+	return sd, d.keepSums(cs, second), nil
+}
+
+// rankVerdict refuses a predictor that is constant or collinear with the
+// ones before it, from the weighted means, the total weight and the
+// centred cross-products (K x K) of the columns names; otherwise it gives
+// their standard deviations (1 for none).
+func rankVerdict(names []string, mean []float64, tot float64, C []float64) ([]float64, error) {
+	K := len(names)
 	sd := make([]float64, K)
 	for k := 0; k < K; k++ {
 		sd[k] = math.Sqrt(C[k*K+k] / tot)
 		scale := math.Max(math.Abs(mean[k]), sd[k])
 		if sd[k] == 0 || sd[k] <= 1e-12*scale {
-			return nil, nil, inputErr("predictor %q is constant (every row has %g): it cannot be estimated alongside the cutpoints; remove it", d.Predictors[k], mean[k])
+			return nil, inputErr("predictor %q is constant (every row has %g): it cannot be estimated alongside the cutpoints; remove it", names[k], mean[k])
 		}
 	}
 	corr := mat.NewSymDense(K, nil)
@@ -105,10 +117,10 @@ func (d *Data) checkRankWith(workers int, base *rankSums) ([]float64, *rankSums,
 						var with []string
 						for i, a := range kept {
 							if math.Abs(beta.AtVec(i)) > 1e-6 {
-								with = append(with, d.Predictors[a])
+								with = append(with, names[a])
 							}
 						}
-						return nil, nil, inputErr("predictor %q is perfectly collinear with %s (and the constant): remove one of them", d.Predictors[k], strings.Join(quoteAll(with), ", "))
+						return nil, inputErr("predictor %q is perfectly collinear with %s (and the constant): remove one of them", names[k], strings.Join(quoteAll(with), ", "))
 					}
 				}
 			}
@@ -120,7 +132,7 @@ func (d *Data) checkRankWith(workers int, base *rankSums) ([]float64, *rankSums,
 			sd[k] = 1
 		}
 	}
-	return sd, d.keepSums(cs, second), nil
+	return sd, nil
 }
 
 // rankSums are the two passes' sums of a rank check of data without
