@@ -420,6 +420,10 @@ func CategoryProbabilities(c Comparison, backward bool, l Link, L, p []float64) 
 // cumulative models they can be negative when the L_m are not increasing.
 func (k *kernel) probs(L []float64, p []float64) {
 	q := k.nEq
+	if k.cmp == Cumulative && k.link == Logit && q > 0 {
+		logitCumulativeProbs(L, p)
+		return
+	}
 	if k.cmp == Cumulative {
 		prev := 0.0
 		for m := 0; m < q; m++ {
@@ -436,11 +440,31 @@ func (k *kernel) probs(L []float64, p []float64) {
 	for c := 0; c <= q; c++ {
 		lp, ok := k.eval(L, c, nil, nil)
 		if ok {
-			p[c] = math.Exp(lp)
+			p[c] = fastExp(lp)
 		} else {
 			p[c] = 0
 		}
 	}
+}
+
+// logitCumulativeProbs is probs of a cumulative logit model: from each
+// boundary's logitPoint, F and 1 - F without cancellation, a category's
+// probability F(L_m) - F(L_m-1) or, where F(L_m) is above 1/2, (1 -
+// F(L_m-1)) - (1 - F(L_m)), so that probabilities near 1 keep their digits
+// too, and the top category's 1 - F(L_q-1) itself.
+func logitCumulativeProbs(L []float64, p []float64) {
+	q := len(L)
+	var prev logitPoint // F = 0, Fc = 0 below the first boundary: p[0] = F(L_0)
+	for m := 0; m < q; m++ {
+		pt := newLogitPoint(L[m])
+		if m == 0 || pt.F <= 0.5 {
+			p[m] = pt.F - prev.F
+		} else {
+			p[m] = prev.Fc - pt.Fc
+		}
+		prev = pt
+	}
+	p[q] = prev.Fc
 }
 
 // fisher fills info (dense (J-1)^2) with the expected information of one

@@ -155,3 +155,40 @@ func TestLogitTails(t *testing.T) {
 		}
 	}
 }
+
+// TestLogitCumulativeProbs checks the category probabilities of a
+// cumulative logit model (logitCumulativeProbs, through
+// CategoryProbabilities) against the textbook logistic F(z) = 1/(1 + e^-z)
+// and 1 - F(z) = 1/(1 + e^z), each formed directly: differences of F for
+// boundaries at or below 0, of 1 - F above it (where each is exact to
+// rounding and their difference loses no digits), the top category 1 -
+// F; within 4e-16 of the sum of the terms (of the probability itself
+// when it is one term), also where every probability but one is far in a
+// tail.
+func TestLogitCumulativeProbs(t *testing.T) {
+	F := func(z float64) float64 { return 1 / (1 + math.Exp(-z)) }
+	Fc := func(z float64) float64 { return 1 / (1 + math.Exp(z)) }
+	for _, L := range [][]float64{
+		{0.3}, {-2, -1, 0.5, 3}, {30, 31}, {-40, 40}, {-31, -30}, {36, 37, 40}, {-800, 0, 800}, {1e-17, 2e-17}, {-3, -2.9, -2.8},
+	} {
+		q := len(L)
+		p := make([]float64, q+1)
+		CategoryProbabilities(Cumulative, false, Logit, L, p)
+		for m := 0; m <= q; m++ {
+			var want, scale float64 // scale: the sum of the terms
+			switch {
+			case m == 0:
+				want, scale = F(L[0]), F(L[0])
+			case m == q:
+				want, scale = Fc(L[q-1]), Fc(L[q-1])
+			case L[m] <= 0:
+				want, scale = F(L[m])-F(L[m-1]), F(L[m])+F(L[m-1])
+			default:
+				want, scale = Fc(L[m-1])-Fc(L[m]), Fc(L[m-1])+Fc(L[m])
+			}
+			if d := math.Abs(p[m] - want); d > 4e-16*scale {
+				t.Errorf("L %v: P(y=%d) = %v, textbook %v", L, m, p[m], want)
+			}
+		}
+	}
+}
