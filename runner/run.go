@@ -42,7 +42,7 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 		return nil, err
 	}
 	defer unpin()
-	res := &Result{Plan: p, Analysis: an, DataHash: dataHash, DataParts: parts, Version: Version,
+	res := &Result{Plan: p, Analysis: an, DataParts: parts, Version: Version,
 		GoVersion: runtime.Version(), Platform: runtime.GOOS + "/" + runtime.GOARCH}
 	if an.Inference.PredictPath != "" {
 		h, unpinNew, err := data.Pin(an.Inference.PredictPath)
@@ -66,20 +66,22 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 	}
 	res.Notes = append(res.Notes, an.Errors.Notes()...)
 	for i, oc := range p.Outcomes {
-		or, err := runOutcome(an, an.Outcomes[i], oc, opt, res.DataHash)
+		or, err := runOutcome(an, an.Outcomes[i], oc, opt, dataHash)
 		if err != nil {
 			return nil, err
 		}
 		res.Outcomes = append(res.Outcomes, or)
 	}
+	res.DataHash = dataHash()
 	adjustHypotheses(an, res)
 	return res, nil
 }
 
 // runOutcome resolves, then does: the outcome's data and design, the
 // partial sets, the grid of fits, the tests, the rules, overall fit and
-// inference.
-func runOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash string) (*OutcomeResult, error) {
+// inference. dataHash gives the data's hash, waiting for it: the data are
+// used only once it is taken.
+func runOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash func() string) (*OutcomeResult, error) {
 	var notes []string
 	if an.Imputed != nil || an.Imputes() {
 		or, err := runImputedOutcome(an, r, oc, opt)
@@ -92,6 +94,7 @@ func runOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash 
 	if err != nil {
 		return nil, err
 	}
+	hash := dataHash()
 	ds, dz := ld.Data, ld.Design
 	or := &OutcomeResult{Outcome: oc, Data: ds, FitData: ld.FitData, Design: dz, Terms: termsOf(dz), dataOptions: r.Options}
 	or.Notes = append(notes, dz.Notes...)
@@ -113,7 +116,7 @@ func runOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash 
 	jobs, notes := gridJobs(an, or.Terms, or.FreeSets, backward)
 	or.Notes = append(or.Notes, notes...)
 	target := gridTarget{label: oc.Column, data: or.FitData, fit: fopt, sandwich: sandwich,
-		remote: &remoteData{outcome: oc.Column, dataFile: an.DataFile, dataHash: dataHash, dataOptions: r.Options}}
+		remote: &remoteData{outcome: oc.Column, dataFile: an.DataFile, dataHash: hash, dataOptions: r.Options}}
 	if !dz.Trivial() {
 		target.remote.design = dz.Freeze(r.Design)
 	}
@@ -316,23 +319,27 @@ func (or *OutcomeResult) OnlyParallel(a fit.Comparison, term string, l fit.Link)
 // pinData reads the data once (see data.Pin) and gives its hash: the
 // file's SHA-256, or for data held as parts the SHA-256 of the parts'
 // hex SHA-256s, one per line in order (PartsHash), with each part's hash.
-func pinData(a *Analysis) (string, []DataRef, func(), error) {
+// A single file's hash may still be being taken when pinData returns
+// (data.PinEarly), beside the parsing of its bytes: the function waits
+// for it.
+func pinData(a *Analysis) (func() string, []DataRef, func(), error) {
 	if a.DataPaths == nil {
-		h, unpin, err := data.Pin(a.DataPath)
+		h, unpin, err := data.PinEarly(a.DataPath)
 		if err != nil {
-			return "", nil, nil, fmt.Errorf("%s: data.file: %v", a.Source, err)
+			return nil, nil, nil, fmt.Errorf("%s: data.file: %v", a.Source, err)
 		}
 		return h, nil, unpin, nil
 	}
 	refs, unpin, err := pinFiles(a.DataFiles, a.DataPaths)
 	if err != nil {
-		return "", nil, nil, fmt.Errorf("%s: data.parts: %v", a.Source, err)
+		return nil, nil, nil, fmt.Errorf("%s: data.parts: %v", a.Source, err)
 	}
 	hashes := make([]string, len(refs))
 	for i, r := range refs {
 		hashes[i] = r.SHA256
 	}
-	return PartsHash(hashes), refs, unpin, nil
+	h := PartsHash(hashes)
+	return func() string { return h }, refs, unpin, nil
 }
 
 // pinFiles pins files (named files, read at paths) for the run and

@@ -26,7 +26,7 @@ var pins = struct {
 
 type pinned struct {
 	raw  []byte
-	sum  string // the bytes' hex SHA-256
+	sum  func() string // the bytes' hex SHA-256 (waiting for it while it is taken)
 	refs int
 }
 
@@ -53,6 +53,18 @@ func pinnedBytes(path string) ([]byte, bool) {
 // SHA-256. Pins nest: the bytes of the first pin are kept until the last
 // unpin.
 func Pin(path string) (string, func(), error) {
+	sum, unpin, err := PinEarly(path)
+	if err != nil {
+		return "", nil, err
+	}
+	return sum(), unpin, nil
+}
+
+// PinEarly is Pin returning as soon as the bytes are read and checked:
+// their SHA-256 is still being taken, on a goroutine of its own, beside
+// whatever the caller does next (such as parsing them); sum waits for it
+// and returns it.
+func PinEarly(path string) (sum func() string, unpin func(), err error) {
 	key := pinKey(path)
 	pins.Lock()
 	p, ok := pins.m[key]
@@ -60,7 +72,7 @@ func Pin(path string) (string, func(), error) {
 	if !ok {
 		raw, sum, err := readChecked(path, true)
 		if err != nil {
-			return "", nil, err
+			return nil, nil, err
 		}
 		pins.Lock()
 		if p, ok = pins.m[key]; !ok {
@@ -73,7 +85,7 @@ func Pin(path string) (string, func(), error) {
 	p.refs++
 	pins.Unlock()
 	var once sync.Once
-	unpin := func() {
+	unpin = func() {
 		once.Do(func() {
 			pins.Lock()
 			defer pins.Unlock()
@@ -104,27 +116,27 @@ func ReadFile(path string) ([]byte, error) {
 }
 
 // readChecked reads the file at path whole and checks its bytes (see
-// ReadFile), and gives their hex SHA-256 when sum is true.
-func readChecked(path string, sum bool) ([]byte, string, error) {
+// ReadFile), and gives their hex SHA-256 when sum is true (see readWhole).
+func readChecked(path string, sum bool) ([]byte, func() string, error) {
 	if err := CheckRegular(path); err != nil {
-		return nil, "", err
+		return nil, nil, err
 	}
 	f, err := os.Open(path)
 	if err != nil {
-		return nil, "", &Error{File: path, Msg: "cannot read file: " + osReason(err), Err: err}
+		return nil, nil, &Error{File: path, Msg: "cannot read file: " + osReason(err), Err: err}
 	}
 	defer f.Close()
 	text := !IsWorkbook(path) && !IsParquet(path)
 	raw, hash, bad, err := readWhole(f, path, sum, text)
 	if err != nil {
-		return nil, "", err
+		return nil, nil, err
 	}
 	if text {
 		if msg := sniff(raw); msg != "" {
-			return nil, "", &Error{File: path, Msg: msg}
+			return nil, nil, &Error{File: path, Msg: msg}
 		}
 		if bad >= 0 {
-			return nil, "", &Error{File: path, Msg: notUTF8(raw, bad)}
+			return nil, nil, &Error{File: path, Msg: notUTF8(raw, bad)}
 		}
 	}
 	return raw, hash, nil
@@ -153,13 +165,14 @@ func fileBytes(path string) ([]byte, error) {
 	return buf.Bytes(), nil
 }
 
-// readWhole reads the open file f (at path) whole, with the hex SHA-256
-// of its bytes when sum is true (else "") and, when check is true, the
-// index of the first byte that is not valid UTF-8 (invalidUTF8 of the
-// whole, -1 when none or when check is false). A large file is read in
-// blocks on the workers (readBlocks); a small one, or one that changed
-// while read that way, in one stream.
-func readWhole(f *os.File, path string, sum, check bool) ([]byte, string, int, error) {
+// readWhole reads the open file f (at path) whole, with, when sum is
+// true, a function giving the hex SHA-256 of its bytes (else nil; for a
+// large file it may still be being taken: the function waits for it) and,
+// when check is true, the index of the first byte that is not valid UTF-8
+// (invalidUTF8 of the whole, -1 when none or when check is false). A
+// large file is read in blocks on the workers (readBlocks); a small one,
+// or one that changed while read that way, in one stream.
+func readWhole(f *os.File, path string, sum, check bool) ([]byte, func() string, int, error) {
 	var size int64
 	if fi, err := f.Stat(); err == nil {
 		size = fi.Size()
@@ -169,16 +182,18 @@ func readWhole(f *os.File, path string, sum, check bool) ([]byte, string, int, e
 			return raw, hash, bad, nil
 		}
 		if _, err := f.Seek(0, io.SeekStart); err != nil {
-			return nil, "", -1, &Error{File: path, Msg: "cannot read file: " + osReason(err), Err: err}
+			return nil, nil, -1, &Error{File: path, Msg: "cannot read file: " + osReason(err), Err: err}
 		}
 	}
 	buf := bytes.NewBuffer(make([]byte, 0, size+bytes.MinRead))
 	if _, err := buf.ReadFrom(f); err != nil {
-		return nil, "", -1, &Error{File: path, Msg: "cannot read file: " + osReason(err), Err: err}
+		return nil, nil, -1, &Error{File: path, Msg: "cannot read file: " + osReason(err), Err: err}
 	}
-	raw, hash, bad := buf.Bytes(), "", -1
+	raw, bad := buf.Bytes(), -1
+	var hash func() string
 	if sum {
-		hash = HashBytes(raw)
+		h := HashBytes(raw)
+		hash = func() string { return h }
 	}
 	if check {
 		bad = invalidUTF8(raw, true)
@@ -194,11 +209,12 @@ const readBlock = 4 << 20
 // new memory, are then shared), once: each piece goes straight into its
 // place. The SHA-256 (when sum is true) is taken on a goroutine of its
 // own, piece after piece as they arrive, so that it runs beside the
-// reading and the UTF-8 check (when check is true; on the workers, by
-// pieces: invalidUTF8Blocks). False when the file turned out not to be of
-// that size (it changed while read) or a piece failed: the caller then
-// reads it from the start, in one stream, and reports any error.
-func readBlocks(f *os.File, size int64, sum, check bool) (raw []byte, hash string, bad int, ok bool) {
+// reading, the UTF-8 check (when check is true; on the workers, by
+// pieces: invalidUTF8Blocks) and what the caller does next: hash waits
+// for it. False when the file turned out not to be of that size (it
+// changed while read) or a piece failed: the caller then reads it from
+// the start, in one stream, and reports any error.
+func readBlocks(f *os.File, size int64, sum, check bool) (raw []byte, hash func() string, bad int, ok bool) {
 	raw = make([]byte, size)
 	adviseHuge(raw)
 	n := int((size + readBlock - 1) / readBlock)
@@ -231,14 +247,14 @@ func readBlocks(f *os.File, size int64, sum, check bool) (raw []byte, hash strin
 		if sum {
 			<-hashed
 		}
-		return nil, "", -1, false
+		return nil, nil, -1, false
 	}
 	bad = -1
 	if check {
 		bad = invalidUTF8Blocks(raw, readBlock)
 	}
 	if sum {
-		hash = <-hashed
+		hash = sync.OnceValue(func() string { return <-hashed })
 	}
 	return raw, hash, bad, true
 }
