@@ -4,6 +4,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 	"time"
@@ -47,8 +48,9 @@ func writePart(t *testing.T, dir, name, body string) PartitionRef {
 }
 
 // A fit whose likelihood is summed over four partitions evaluated by
-// workers equals the local fit of the whole file to 1e-8 (General Social
-// Survey extract, Long 1997).
+// workers equals the local fit of the whole file to 1e-8, and so does the
+// Lipsitz test over the partitions (General Social Survey extract, Long
+// 1997).
 func TestPartitionedFitEqualsLocal(t *testing.T) {
 	ctx := testContext(t, 60*time.Second)
 	url := localserver.ForTest(t)
@@ -92,6 +94,19 @@ func TestPartitionedFitEqualsLocal(t *testing.T) {
 		}
 		if r.NegativeRows != local.NegativeRows || math.Abs(r.MinFittedProb-local.MinFittedProb) > 1e-12 {
 			t.Errorf("%s: diagnostics %d %v, local %d %v", m.Name(), r.NegativeRows, r.MinFittedProb, local.NegativeRows, local.MinFittedProb)
+		}
+		// The Lipsitz test of the local fit over the partitions: the local
+		// test's groups, its statistic.
+		want, err := fit.LipsitzTest(runner.FitData(ds), local, 0, fit.Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, err := LipsitzPartitioned(ctx, c, parts, whole, local, PartitionOptions{Data: dopt})
+		if err != nil {
+			t.Fatalf("%s: Lipsitz test over the partitions: %v", m.Name(), err)
+		}
+		if !got.Test.OK || got.Test.DF != want.Test.DF || math.Abs(got.Test.Chi2-want.Test.Chi2) > 1e-6 || !slices.Equal(got.Table.Weight, want.Table.Weight) {
+			t.Errorf("%s: Lipsitz %+v %v over the partitions, %+v %v here", m.Name(), got.Test, got.Table.Weight, want.Test, want.Table.Weight)
 		}
 	}
 }
