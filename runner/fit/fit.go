@@ -96,6 +96,11 @@ type Options struct {
 	// iterations at the maximum on a fixed subsample (subsample.go).
 	// 0 means 200000; a negative number never.
 	SubsampleAbove int `json:"subsample_above"`
+	// KeepStarts runs every start of a model with constrained predictors
+	// to its end. Without it a start is abandoned once it cannot reach the
+	// best log-likelihood found so far (runStart), which saves iterations
+	// and leaves the maximum reported as it is (the tests check this).
+	KeepStarts bool `json:"keep_starts,omitempty"`
 	// Sandwich, when set, replaces the covariance of every usable fit that
 	// Stepwise makes before it tests (robust or cluster-robust errors).
 	// Fit itself ignores it.

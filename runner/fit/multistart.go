@@ -405,7 +405,8 @@ const startGap = 20
 const reasonFlat = "the log-likelihood is flat (singular information)"
 
 // runStart runs Newton-Raphson from theta; best is the best log-likelihood
-// found so far (-Inf: run to the iteration limit). A start at which an
+// found so far (-Inf, or opt.KeepStarts: run to the iteration limit, never
+// abandoned). A start at which an
 // observed category has probability zero is first moved towards anchor
 // (when not nil).
 func (p *problem) runStart(theta, anchor []float64, opt Options, best float64) newtonState {
@@ -420,7 +421,7 @@ func (p *problem) runStart(theta, anchor []float64, opt Options, best float64) n
 		if it >= 3 && !pd && dec <= 1e-10*math.Max(1, math.Abs(ll)) {
 			return reasonFlat
 		}
-		if math.IsInf(best, -1) {
+		if math.IsInf(best, -1) || opt.KeepStarts {
 			return ""
 		}
 		gap := best - sameLL - ll
@@ -481,8 +482,14 @@ func recordOf(label string, st *newtonState) StartRecord {
 	return rec
 }
 
-// bestRun returns the run with the highest log-likelihood, preferring, among
-// runs within sameLL of it, a converged one, then the earliest.
+// bestRun returns the run that reached the highest log-likelihood: among
+// the converged runs within tieLL of the highest, the earliest; else the
+// highest, preferring, among runs within sameLL of it, a converged one,
+// then the earliest. Starts that reach one maximum end at points that
+// differ in the last digits the convergence rule leaves (about 1e-8 of an
+// estimate), and their log-likelihoods by rounding: the earliest such run
+// is reported, so that which later starts ran to their end (abandoned or
+// not, Options.KeepStarts) does not change the result.
 func bestRun(runs []*runRecord) int {
 	b := -1
 	for i, r := range runs {
@@ -496,6 +503,12 @@ func bestRun(runs []*runRecord) int {
 	if b < 0 {
 		return 0
 	}
+	tie := tieLL * math.Max(1, math.Abs(runs[b].st.ll))
+	for i, r := range runs {
+		if r.st != nil && r.st.converged && r.st.ll >= runs[b].st.ll-tie {
+			return i
+		}
+	}
 	if !runs[b].st.converged {
 		for i, r := range runs {
 			if r.st != nil && r.st.converged && r.st.ll >= runs[b].st.ll-sameLL {
@@ -505,3 +518,9 @@ func bestRun(runs []*runRecord) int {
 	}
 	return b
 }
+
+// tieLL: converged runs whose log-likelihoods differ by less than this
+// share of it reached one maximum as far as the convergence rule can tell
+// (it stops at a Newton decrement of 1e-10 of the log-likelihood, then
+// takes one more step).
+const tieLL = 1e-10

@@ -94,3 +94,105 @@ func ridgeData(n int) *Data {
 	}
 	return d
 }
+
+// TestKeepStartsSameMaximum: abandoning the starts that cannot reach the
+// best log-likelihood found so far (runStart: at the first evaluation by
+// startGap, later by the quadratic model and the progress) leaves the
+// maximum as it is. Every constrained and stereotype record of the
+// reference data (sources: refSources) is fitted with abandoning and
+// without (Options.KeepStarts), with every start run on the data and with
+// the starts screened on the quadratic approximation: the log-likelihood
+// and every estimate agree to the bit or to 1e-9 (relative, absolute below
+// 1). The example plan's constrained and stereotype models are checked the
+// same way (TestExamplePlanKeepStartsSameMaximum).
+func TestKeepStartsSameMaximum(t *testing.T) {
+	var tally startsTally
+	for _, name := range refNames {
+		rs := loadRef(t, name)
+		for _, rm := range rs.models {
+			if len(rm.Constrained) == 0 {
+				continue
+			}
+			for _, opt := range []Options{{}, {ScreenAbove: -1}} {
+				label := fmt.Sprintf("%s/%s/screen-above-%d (%s)", name, rm.ID, opt.ScreenAbove, refSources[name])
+				d, m := rs.data(rm.Predictors), rm.modelOf(t)
+				on, err := Fit(d, m, opt)
+				if err != nil {
+					t.Fatalf("%s: %v", label, err)
+				}
+				opt.KeepStarts = true
+				off, err := Fit(d, m, opt)
+				if err != nil {
+					t.Fatalf("%s: %v", label, err)
+				}
+				tally.compare(t, label, on, off)
+			}
+		}
+	}
+	tally.check(t)
+}
+
+// startsTally compares fits of one model with abandoning (on) and
+// without (off, Options.KeepStarts) and counts what the comparisons saw.
+type startsTally struct{ fits, abandoned, atOnce, sameBits int }
+
+// compare checks that on and off reach the same maximum: the same status,
+// and a log-likelihood and estimates the same to the bit or to 1e-9
+// (relative, absolute below 1); and that off abandoned no start.
+func (c *startsTally) compare(t *testing.T, label string, on, off *Result) {
+	t.Helper()
+	n := 0
+	for _, s := range on.Starts {
+		if strings.HasPrefix(s.Reason, "abandoned") {
+			n++
+			if s.Iterations == 0 {
+				c.atOnce++ // at its first evaluation (startGap)
+			}
+		}
+	}
+	for _, s := range off.Starts {
+		if strings.HasPrefix(s.Reason, "abandoned") {
+			t.Errorf("%s: start %s abandoned with KeepStarts", label, s.Label)
+		}
+	}
+	c.fits++
+	c.abandoned += n
+	if on.Status != off.Status || len(on.Estimates) != len(off.Estimates) {
+		t.Errorf("%s: status %s with abandoning, %s without; %d and %d estimates", label, on.Status, off.Status, len(on.Estimates), len(off.Estimates))
+		return
+	}
+	worst, at := 0.0, ""
+	for i, x := range append([]float64{on.LogLik}, on.Estimates...) {
+		y := off.LogLik
+		name := "loglik"
+		if i > 0 {
+			y, name = off.Estimates[i-1], on.ParamNames[i-1]
+		}
+		d := math.Abs(x-y) / math.Max(1, math.Abs(y))
+		if x == y || (math.IsNaN(x) && math.IsNaN(y)) {
+			d = 0
+		} else if math.IsNaN(d) {
+			d = math.Inf(1)
+		}
+		if d > worst {
+			worst, at = d, fmt.Sprintf("%s %.15g with abandoning, %.15g without", name, x, y)
+		}
+	}
+	t.Logf("%s: %d of %d starts abandoned; loglik %.10f; largest difference %.2g", label, n, len(on.Starts), on.LogLik, worst)
+	if worst > 1e-9 {
+		t.Errorf("%s: %s", label, at)
+	}
+	if worst == 0 {
+		c.sameBits++
+	}
+}
+
+// check says what the comparisons saw, and fails when no start was
+// abandoned at its first evaluation: the rule would go unchecked.
+func (c *startsTally) check(t *testing.T) {
+	t.Helper()
+	t.Logf("%d fits: %d starts abandoned, %d of them at their first evaluation; %d fits the same to the bit", c.fits, c.abandoned, c.atOnce, c.sameBits)
+	if c.atOnce == 0 {
+		t.Error("no start was abandoned at its first evaluation: the check compares nothing")
+	}
+}

@@ -46,7 +46,7 @@ func TestJobJSONKeysAreSnakeCase(t *testing.T) {
 		},
 		Design: d.Freeze(spec),
 		FitOptions: fit.Options{Covariance: fit.Expected, MaxIter: 50, Workers: 1, Start: []float64{0.5, -1},
-			Scoring: true, RandomStarts: 3, ScreenAbove: 10, SubsampleAbove: 100},
+			Scoring: true, RandomStarts: 3, ScreenAbove: 10, SubsampleAbove: 100, KeepStarts: true},
 	}
 	js, err := json.Marshal(job)
 	if err != nil {

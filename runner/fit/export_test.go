@@ -1,0 +1,18 @@
+package fit
+
+import "testing"
+
+// StartsTally gives the external tests of this package the comparison of
+// fits with and without abandoned starts (startsTally).
+type StartsTally struct{ c startsTally }
+
+// Compare is startsTally.compare; Check is startsTally.check.
+func (s *StartsTally) Compare(t *testing.T, label string, on, off *Result) {
+	t.Helper()
+	s.c.compare(t, label, on, off)
+}
+
+func (s *StartsTally) Check(t *testing.T) {
+	t.Helper()
+	s.c.check(t)
+}
