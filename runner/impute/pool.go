@@ -168,7 +168,7 @@ func (s Scalar) Interval(level float64) (low, high, p float64) {
 
 // BarnardRubinDF is the degrees of freedom of a pooled estimate with
 // lambda = (1+1/m) B / T, adjusted for a complete-data analysis with
-// dfComplete degrees of freedom (Barnard and Rubin 1999):
+// dfComplete degrees of freedom (the Barnard-Rubin degrees of freedom):
 // 1/df = 1/df_old + 1/df_obs with df_old = (m-1)/lambda^2 and
 // df_obs = (dfc+1)/(dfc+3) dfc (1-lambda). With dfComplete = +Inf it is
 // Rubin's df_old; with lambda = 0 it is df_obs.
@@ -200,9 +200,9 @@ type FTest struct {
 	Warnings string
 }
 
-// pooledTestDF is the denominator degrees of freedom shared by D1 and D3
-// (Li, Raghunathan and Rubin 1991): with t = k(m-1), 4 + (t-4)(1 +
-// (1-2/t)/r)^2 when t > 4, else t(1+1/k)(1+1/r)^2/2.
+// pooledTestDF is the denominator degrees of freedom shared by D1 and D3:
+// with t = k(m-1), 4 + (t-4)(1 + (1-2/t)/r)^2 when t > 4, else
+// t(1+1/k)(1+1/r)^2/2.
 func pooledTestDF(k, m int, r float64) float64 {
 	if r <= 0 {
 		return math.Inf(1)
@@ -217,7 +217,7 @@ func pooledTestDF(k, m int, r float64) float64 {
 }
 
 // D1 tests C theta = c0 (C: k x P, row-major; c0 nil for zeros) with the
-// pooled Wald statistic of Li, Raghunathan and Rubin (1991):
+// pooled Wald statistic:
 // D1 = d' W_c^-1 d / (k (1 + r)), d = C Qbar - c0, W_c = C W C',
 // r = (1 + 1/m) tr(B_c W_c^-1) / k, referred to F(k, df) with the
 // degrees of freedom of pooledTestDF.
@@ -259,7 +259,7 @@ func D1(p *Pooled, C []float64, c0 []float64) (FTest, error) {
 	return FTest{Method: "D1", F: f, DF1: k, DF2: df2, P: fSurvival(f, k, df2), RIV: r, Imputed: p.M}, nil
 }
 
-// D3 pools likelihood-ratio tests (Meng and Rubin 1992). own[i] is the
+// D3 pools likelihood-ratio tests. own[i] is the
 // likelihood-ratio statistic 2(l_full - l_restricted) of set i with each
 // model at its own estimates; atPooled[i] the same statistic with both
 // models at their pooled estimates. k is the number of restrictions.
@@ -301,16 +301,15 @@ func D3(own, atPooled []float64, k int) (FTest, error) {
 }
 
 // D2 pools chi-square statistics on k degrees of freedom, one per imputed
-// set, when only the statistics are available (Li, Meng, Raghunathan and
-// Rubin 1991): with dbar their mean and r = (1 + 1/m) times the variance
-// (divisor m-1) of their square roots,
+// set, when only the statistics are available: with dbar their mean and
+// r = (1 + 1/m) times the variance (divisor m-1) of their square roots,
 // D2 = (dbar/k - (m+1)/(m-1) r) / (1 + r), referred to F(k, v) with
 // v = k^(-3/m) (m-1) (1 + 1/r)^2. A negative D2 (statistics that vary a
 // lot between the sets relative to their size) is set to 0, p = 1, and
 // Warnings says so. With identical statistics r = 0 and D2 is the
 // statistic over k on (k, infinity) degrees of freedom: the chi-square
-// test of one set. D2 is less powerful than D1 or D3 and, by its authors'
-// account, approximate; it is used only where neither applies.
+// test of one set. D2 is less powerful than D1 or D3 and approximate; it
+// is used only where neither applies.
 func D2(chi2 []float64, k int) (FTest, error) {
 	m := len(chi2)
 	if m < 2 {

@@ -5,8 +5,8 @@
 # each, pooled by pool(); pool.scalar for one coefficient with the
 # complete-data sample size; D2 (mice::D2, Wald statistics combined by
 # mitml) of bmi and hyp; D1 of bmi and hyp by mitml's testModels without
-# complete-data degrees of freedom (the F reference of Li, Raghunathan and
-# Rubin; mice::D1 passes the residual degrees of freedom and so gets a
+# complete-data degrees of freedom (D1's usual large-sample F reference;
+# mice::D1 passes the residual degrees of freedom and so gets a
 # small-sample denominator instead). Prints "name v1 v2 ..." lines with 17 significant
 # digits: the versions, every set's estimates and covariance, and what
 # mice computed from them.
