@@ -151,7 +151,7 @@ func TestImputedIdenticalSets(t *testing.T) {
 	}
 	// Marginal effects and predictions pooled over identical sets are the
 	// single-set ones with zero between variance; their degrees of freedom
-	// are Barnard and Rubin's with lambda = 0, (n+1)/(n+3) n for the
+	// are the Barnard-Rubin ones with lambda = 0, (n+1)/(n+3) n for the
 	// complete-data n = observations - parameters, and intervals use t.
 	chosen := oi.Chosen.Result
 	dfc := chosen.NObs - float64(chosen.NParams)

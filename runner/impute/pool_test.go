@@ -27,7 +27,7 @@ func near(t *testing.T, what string, got, want, tol float64) {
 // TestIdenticalSets: when every imputed set gives the same analysis the
 // pooled estimates and covariance are that analysis, the between variance
 // is zero, the degrees of freedom are the complete-data ones adjusted by
-// Barnard and Rubin (or infinite), D1 is the Wald test over k and D3 the
+// the Barnard-Rubin rule (or infinite), D1 is the Wald test over k and D3 the
 // likelihood-ratio statistic over k.
 func TestIdenticalSets(t *testing.T) {
 	s := Set{Est: []float64{0.5, -1.25, 2}, Cov: []float64{0.04, 0.01, 0, 0.01, 0.09, 0.02, 0, 0.02, 0.25}}
@@ -112,7 +112,7 @@ func TestPoolErrors(t *testing.T) {
 // TestAgainstMice pools binary logistic fits of five imputed sets and
 // checks every quantity against the general-purpose multiple-imputation
 // package mice (pool.scalar: Rubin's rules with the Barnard-Rubin degrees
-// of freedom; D3: the pooled likelihood-ratio test of Meng and Rubin). The
+// of freedom; D3: the pooled likelihood-ratio test). The
 // program's fits are the two-category cumulative logit model, whose slopes
 // are glm's with the sign reversed (checked against glm in runner/fit).
 func TestAgainstMice(t *testing.T) {
@@ -222,8 +222,8 @@ func TestAgainstMice(t *testing.T) {
 		near(t, "LR statistic at own estimates", own[k], dev0M[k]-dev1M[k], 1e-6)
 	}
 	// mice evaluates the "pooled" deviances with the intercept re-estimated
-	// at the pooled slopes, not at all pooled estimates as Meng and Rubin
-	// define them; so its D3 is compared on its own deviances (the
+	// at the pooled slopes, not at all pooled estimates as D3 is
+	// defined; so its D3 is compared on its own deviances (the
 	// combination formula), and ours is logged beside it.
 	dev1L, dev0L := vals.Get(t, "dev1L"), vals.Get(t, "dev0L")
 	miceAt := make([]float64, m)
