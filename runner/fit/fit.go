@@ -180,7 +180,7 @@ type Result struct {
 	rank *rankSums
 	// last: the sums of the fit's last evaluation to second order, which
 	// the same refit's first evaluation takes its X parts from (nil when
-	// unknown).
+	// unknown); of the size of the information (a few KB), not of the rows.
 	last *lastSums
 }
 
