@@ -236,20 +236,7 @@ func TestRefitFirstSumsOnlyOfTheirRows(t *testing.T) {
 			d    *Data
 			take bool
 		}{{"its rows", d, true}, {"other rows", other, false}, {"a copy of its rows", same, false}} {
-			g, err := GroupByScore(c.d, r, 0)
-			if err != nil {
-				t.Fatal(err)
-			}
-			ad, am, start, err := withIndicators(c.d, r, g)
-			if err != nil {
-				t.Fatal(err)
-			}
-			ly, err := newLayout(am, ad.J, ad.Predictors)
-			if err != nil {
-				t.Fatal(err)
-			}
-			pr := newProblem(ad.design(), am, ly, 0)
-			pr.first = &firstSums{theta: start, base: r.last}
+			pr, start := refitProblem(t, c.d, r)
 			name := fmt.Sprintf("%s (weights and offset %v)", c.name, wo)
 			if took := pr.takeFirst(start, 2, false) != nil; took != c.take {
 				t.Errorf("%s: sums taken %v, want %v", name, took, c.take)

@@ -25,20 +25,7 @@ func TestRefitFirstSumsSameBits(t *testing.T) {
 				if r.last == nil {
 					t.Fatalf("%s: the fit kept no last evaluation", m.Name())
 				}
-				g, err := GroupByScore(d, r, 0)
-				if err != nil {
-					t.Fatal(err)
-				}
-				ad, am, start, err := withIndicators(d, r, g)
-				if err != nil {
-					t.Fatal(err)
-				}
-				ly, err := newLayout(am, ad.J, ad.Predictors)
-				if err != nil {
-					t.Fatal(err)
-				}
-				pr := newProblem(ad.design(), am, ly, 0)
-				pr.first = &firstSums{theta: start, base: r.last}
+				pr, start := refitProblem(t, d, r)
 				got := pr.evaluateKept(start, 2, scoring)
 				if pr.first != nil {
 					t.Fatalf("%s: the first sums were not used", m.Name())
@@ -65,4 +52,26 @@ func TestRefitFirstSumsSameBits(t *testing.T) {
 			}
 		}
 	}
+}
+
+// refitProblem is the problem of the Lipsitz refit of fit r on its data d
+// (the model with the indicators of d's score groups) and its start, with
+// the first sums from r's last evaluation.
+func refitProblem(t *testing.T, d *Data, r *Result) (*problem, []float64) {
+	t.Helper()
+	g, err := GroupByScore(d, r, 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ad, am, start, err := withIndicators(d, r, g)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ly, err := newLayout(am, ad.J, ad.Predictors)
+	if err != nil {
+		t.Fatal(err)
+	}
+	pr := newProblem(ad.design(), am, ly, 0)
+	pr.first = &firstSums{theta: start, base: r.last}
+	return pr, start
 }
