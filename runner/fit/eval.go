@@ -604,6 +604,9 @@ func axpy(y []float64, b float64, x []float64) {
 func (p *problem) blockKernels(c *coefs, lo, rows, order int, expected bool, a *acc, s *scratch) bool {
 	d, q := p.d, p.q
 	if p.ker.cmp == Cumulative && !expected {
+		if q == 1 && p.ker.link == Logit {
+			return p.binaryKernels(c, lo, rows, order, a, s)
+		}
 		return p.cumulativeKernels(c, lo, rows, order, a, s)
 	}
 	if !expected {

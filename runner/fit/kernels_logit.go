@@ -4,10 +4,11 @@ import "math"
 
 // The row kernels of stage, stacked and adjacent models under the logit
 // link with observed derivatives, written straight into the block's
-// columns (as cumulativeKernels for cumulative models): the values of the
-// general kernel (kernel.eval through blockKernels), bit for bit, without
-// its per-row clearing of a dense gradient and Hessian and their copy into
-// the columns (TestBlockKernelsAsGeneral).
+// columns (as cumulativeKernels for cumulative models), and of binary
+// logit models in sweeps over the block: the values of the general kernel
+// (kernel.eval through blockKernels), bit for bit, without its per-row
+// clearing of a dense gradient and Hessian and their copy into the columns
+// (TestBlockKernelsAsGeneral).
 
 // logitKernels reports whether blockKernels takes tailKernels or
 // adjacentKernels, and runs it.
@@ -127,6 +128,61 @@ func (p *problem) adjacentKernels(c *coefs, lo, rows, order int, a *acc, s *scra
 			for pi, pr := range p.pairs {
 				hp[pi*rows+i] = wi * -(C[pr[0]] * U[pr[1]])
 			}
+		}
+	}
+	return true
+}
+
+// binaryKernels is cumulativeKernels for a binary logit model, in three
+// sweeps over the block so that the rows' exponentials and logarithms,
+// which do not depend on one another, overlap: e^-|z| of every row (into
+// the column of first derivatives), log1p of those (into the column of
+// second derivatives), then each row's log-probability and derivatives
+// from them, the values of Link.lower and Link.upper bit for bit.
+func (p *problem) binaryKernels(c *coefs, lo, rows, order int, a *acc, s *scratch) bool {
+	y := p.d.y[lo : lo+rows]
+	eta := s.eta[:rows]
+	tau := c.tau[0]
+	ex, lg := s.gs[:rows], s.hp[:rows]
+	for i, v := range eta {
+		ex[i] = fastExp(-math.Abs(tau - v))
+	}
+	for i, e := range ex {
+		lg[i] = fastLog1p(e)
+	}
+	var w []float64
+	if p.d.w != nil {
+		w = p.d.w[lo : lo+rows]
+		w = w[:len(eta)]
+	}
+	y = y[:len(eta)]
+	for i, yi := range y {
+		wi := 1.0
+		if w != nil {
+			wi = w[i]
+		}
+		e, l := ex[i], lg[i]
+		ex[i], lg[i] = 0, 0
+		if wi == 0 {
+			continue
+		}
+		pt := logitPointOf(tau-eta[i], e)
+		var lp, d1 float64
+		if yi == 0 {
+			lp, d1 = -l-max(-pt.z, 0), pt.Fc
+		} else {
+			lp, d1 = -l-max(pt.z, 0), -pt.F
+		}
+		if math.IsInf(lp, -1) || math.IsNaN(lp) {
+			return false
+		}
+		a.ll += wi * lp
+		a.minLP = min(a.minLP, lp)
+		if order >= 1 {
+			ex[i] = wi * (0 + d1)
+		}
+		if order >= 2 {
+			lg[i] = wi * (0 + -pt.F*pt.Fc)
 		}
 	}
 	return true

@@ -164,8 +164,10 @@ func (l Link) logDensity(z float64) (float64, float64) {
 // (logitTails shares one among several points).
 type logitPoint struct{ z, e, F, Fc float64 }
 
-func newLogitPoint(z float64) logitPoint {
-	e := fastExp(-math.Abs(z))
+func newLogitPoint(z float64) logitPoint { return logitPointOf(z, fastExp(-math.Abs(z))) }
+
+// logitPointOf is newLogitPoint with e = exp(-|z|) at hand.
+func logitPointOf(z, e float64) logitPoint {
 	p := logitPoint{z: z, e: e, F: 1 / (1 + e)}
 	p.Fc = e * p.F
 	if z < 0 {
