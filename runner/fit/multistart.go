@@ -365,6 +365,9 @@ func (r *Result) setRidgeGroups(predictors []string, ly, pLy *layout, rm rankMap
 func (r rankMap) newton(pp *problem, th0 []float64, maxIter int) newtonState {
 	base := pp.evaluator(false)
 	return newtonLoop(th0, maxIter, func(th []float64, order int) evalOut {
+		if order == 1 {
+			order = 2 // the score is chained with the second derivatives
+		}
 		out := base(r.h(th), order)
 		if !out.bad && order >= 2 {
 			out.g, out.H = r.chain(th, out.g, out.H)

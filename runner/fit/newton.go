@@ -78,6 +78,21 @@ func newtonLoop(theta0 []float64, maxIter int, ev evalFunc) newtonState {
 type stopFunc func(it int, theta []float64, ll, dec float64, pd bool) string
 
 // newtonLoopStop is newtonLoop with an optional early stop.
+//
+// After an iteration whose decrement was very small (at most 1e-8 |LL|,
+// as at a start projected from a fit that nests the model), the full step
+// lands within about the square of that distance of the maximum, and its
+// evaluation asks for the score alone: the previous point's information
+// stands in for this point's. The rule then ends as usual with the last
+// step, evaluated with second derivatives, when the decrement with that
+// information is at most 1e-10 |LL| and the error that information leaves
+// in the last step is negligible: the decrement expected after it,
+// dec^2 / the previous decrement, at most 1e-20 |LL| (estimates within
+// 1e-10 sqrt|LL| standard errors of the last step with this point's own
+// information); the decrement after the step, with its own information,
+// must confirm it. Otherwise this point is evaluated with its own second
+// derivatives, and the iterations go on exactly as if it had been so
+// from the start.
 func newtonLoopStop(theta0 []float64, maxIter int, ev evalFunc, stop stopFunc) newtonState {
 	theta := append([]float64(nil), theta0...)
 	st := newtonState{}
@@ -88,7 +103,37 @@ func newtonLoopStop(theta0 []float64, maxIter int, ev evalFunc, stop stopFunc) n
 	}
 	ll := a.ll
 	prevSmall := false
+	var prevH []float64 // the previous point's information
+	prevDec := 0.0      // and decrement
 	for it := 0; ; it++ {
+		scale := math.Max(1, math.Abs(ll))
+		if a.order < 2 {
+			b, taken, ok := lastStepReused(ev, theta, ll, a.g, prevH, prevDec, scale)
+			switch {
+			case ok:
+				st.theta, st.ll, st.grad, st.hess, st.iters = b.theta, b.ll, b.g, b.H, it
+				st.minLogP, st.minKnown = b.minLogP, b.minKnown
+				st.decrement = b.dec
+				st.converged = true
+				st.reason = "converged"
+				return st
+			case taken:
+				// Stepped, but not confirmed: go on from there.
+				theta, a, ll = b.theta, b.evalOut, b.ll
+				prevSmall = false
+				scale = math.Max(1, math.Abs(ll))
+			default:
+				// Not converged with the reused information: this
+				// point's own.
+				b := ev(theta, 2)
+				if b.bad {
+					st.theta, st.ll, st.iters = theta, ll, it
+					st.reason = "the log-likelihood could not be evaluated"
+					return st
+				}
+				a = b
+			}
+		}
 		g, H := a.g, a.H
 		st.theta, st.ll, st.grad, st.hess, st.iters = theta, ll, g, H, it
 		st.minLogP, st.minKnown = a.minLogP, a.minKnown
@@ -97,7 +142,6 @@ func newtonLoopStop(theta0 []float64, maxIter int, ev evalFunc, stop stopFunc) n
 			st.repaired++
 		}
 		st.decrement = dec
-		scale := math.Max(1, math.Abs(ll))
 		if pd && (dec <= 1e-16*scale || (prevSmall && dec <= 1e-10*scale)) {
 			// Take the last (tiny) step: it squares the remaining error.
 			next := addScaled(theta, d, 1)
@@ -110,6 +154,7 @@ func newtonLoopStop(theta0 []float64, maxIter int, ev evalFunc, stop stopFunc) n
 			return st
 		}
 		prevSmall = pd && dec <= 1e-6*scale
+		prevH, prevDec = H, dec
 		if stop != nil {
 			if why := stop(it, theta, ll, dec, pd); why != "" {
 				st.reason = why
@@ -123,7 +168,8 @@ func newtonLoopStop(theta0 []float64, maxIter int, ev evalFunc, stop stopFunc) n
 		// Step halving: accept the first step that raises the log-likelihood
 		// and keeps every observed category's probability positive. The
 		// full step is evaluated with derivatives, since it is nearly always
-		// accepted and the next iteration needs them at that point.
+		// accepted and the next iteration needs them at that point (the
+		// score alone after a small decrement: see above).
 		step := 1.0
 		var next *evalOut
 		for h := 0; h < 60; h++ {
@@ -131,6 +177,9 @@ func newtonLoopStop(theta0 []float64, maxIter int, ev evalFunc, stop stopFunc) n
 			order := 0
 			if h == 0 {
 				order = 2
+				if pd && dec <= 1e-8*scale {
+					order = 1
+				}
 			}
 			b := ev(cand, order)
 			if !b.bad && (b.ll > ll || (dec < 1e-6*scale && b.ll >= ll-1e-12*scale)) {
@@ -149,7 +198,7 @@ func newtonLoopStop(theta0 []float64, maxIter int, ev evalFunc, stop stopFunc) n
 			}
 			return st
 		}
-		if next.order < 2 {
+		if next.order < 1 {
 			b := ev(theta, 2)
 			next = &b
 		}
@@ -160,6 +209,39 @@ func newtonLoopStop(theta0 []float64, maxIter int, ev evalFunc, stop stopFunc) n
 		a = *next
 		ll = a.ll
 	}
+}
+
+// reusedLast is the last step of lastStepReused: the point reached, its
+// evaluation to second order, and the decrement before the step.
+type reusedLast struct {
+	evalOut
+	theta []float64
+	dec   float64
+}
+
+// lastStepReused is the rule's end at theta, evaluated for the score g
+// alone (log-likelihood ll), with the previous point's information H and
+// decrement prevDec standing in: ok when the decrement with H is small
+// enough to end (see newtonLoopStop) and the last step, evaluated with
+// second derivatives, rises and is confirmed by its own decrement (at most
+// 1e-10 |LL|). taken: the step rose but was not confirmed (which happens
+// only far from a maximum, such as along a direction in which the
+// log-likelihood keeps rising); the iterations go on from there.
+func lastStepReused(ev evalFunc, theta []float64, ll float64, g, H []float64, prevDec, scale float64) (last reusedLast, taken, ok bool) {
+	d, dec, pd := newtonDirection(H, g)
+	if !pd || dec > 1e-10*scale || dec*dec > 1e-20*scale*prevDec {
+		return last, false, false
+	}
+	next := addScaled(theta, d, 1)
+	b := ev(next, 2)
+	if b.bad || b.ll < ll-1e-12*scale {
+		return last, false, false
+	}
+	last = reusedLast{evalOut: b, theta: next, dec: dec}
+	if _, own, pd := newtonDirection(b.H, b.g); !pd || own > 1e-10*scale {
+		return last, true, false
+	}
+	return last, true, true
 }
 
 func addScaled(x, d []float64, s float64) []float64 {
