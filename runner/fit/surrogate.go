@@ -86,6 +86,21 @@ func symMulVec(A, x []float64) []float64 {
 	return out
 }
 
+// hessian is the matrix of second derivatives of -Q at th, the
+// approximation's stand-in for the log-likelihood's.
+func (s *surrogate) hessian(th []float64) []float64 {
+	_, Ir := s.value(th)
+	for i := range Ir {
+		Ir[i] = -Ir[i]
+	}
+	negInfo := make([]float64, len(s.info))
+	for i, v := range s.info {
+		negInfo[i] = -v
+	}
+	_, H := s.chain(th, Ir, negInfo)
+	return H
+}
+
 // maximize climbs -Q from th by Newton steps (with the same repair of an
 // indefinite matrix and step halving as the data fit) to a local maximum.
 func (s *surrogate) maximize(th0 []float64) []float64 {
