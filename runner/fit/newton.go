@@ -87,8 +87,8 @@ type stopFunc func(it int, theta []float64, ll, dec float64, pd bool) string
 // step, evaluated with second derivatives, when the decrement with that
 // information is at most 1e-10 |LL| and the error that information leaves
 // in the last step is negligible: the decrement expected after it,
-// dec^2 / the previous decrement, at most 1e-20 |LL| (estimates within
-// 1e-10 sqrt|LL| standard errors of the last step with this point's own
+// dec^2 / the previous decrement, at most 1e-24 |LL| (estimates within
+// 1e-12 sqrt|LL| standard errors of the last step with this point's own
 // information); the decrement after the step, with its own information,
 // must confirm it. Otherwise this point is evaluated with its own second
 // derivatives, and the iterations go on exactly as if it had been so
@@ -229,7 +229,7 @@ type reusedLast struct {
 // log-likelihood keeps rising); the iterations go on from there.
 func lastStepReused(ev evalFunc, theta []float64, ll float64, g, H []float64, prevDec, scale float64) (last reusedLast, taken, ok bool) {
 	d, dec, pd := newtonDirection(H, g)
-	if !pd || dec > 1e-10*scale || dec*dec > 1e-20*scale*prevDec {
+	if !pd || dec > 1e-10*scale || dec*dec > 1e-24*scale*prevDec {
 		return last, false, false
 	}
 	next := addScaled(theta, d, 1)
