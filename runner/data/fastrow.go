@@ -44,8 +44,9 @@ type fastPlan struct {
 	delim  byte
 	mark   byte // decimal mark
 	// plain: every used field is a number or an integer code with no
-	// missing-value marker that reads as valid (quickRow can read lines).
-	plain bool
+	// missing-value marker that reads as valid (quickRow can read lines);
+	// skips: some field is not used.
+	plain, skips bool
 }
 
 // newFastPlan builds the plan of the fast way for the used columns, or
@@ -91,6 +92,7 @@ func (r *reader) newFastPlan(t *rowTally) *fastPlan {
 	}
 	p.plain = true
 	for _, f := range p.fields {
+		p.skips = p.skips || f.kind == fastSkip
 		switch f.kind {
 		case fastSkip, fastCode, fastNumber, fastWeight, fastOffset:
 			p.plain = p.plain && !f.check
@@ -139,27 +141,44 @@ func (r *reader) fastLines(p *fastPlan, c *chunk, lr *lineRecords) {
 	d, t := c.d, c.t
 	K := d.K
 	var row cells
+	whole := p.plain && !p.skips && !c.quotes // quickRow finds the line end
 	for pos < len(s) {
-		next, hi := len(s), len(s)
-		if e := strings.IndexByte(s[pos:], '\n'); e >= 0 {
-			hi = pos + e
-			next = hi + 1
-		}
-		if hi > pos && s[hi-1] == '\r' {
-			hi--
-		}
-		if hi == pos { // an empty line, skipped as the CSV reader skips it
-			line++
-			pos = next
-			continue
-		}
-		if c.quotes && strings.IndexByte(s[pos:hi], '"') >= 0 {
-			break
-		}
 		n := len(d.X)
 		x := d.X[n : n+K]
-		if !(p.plain && hi+quickSlack <= len(s) && p.quickRow(s, pos, hi, x, &row)) && !r.fastRow(p, t, s, pos, hi, x, &row) {
-			break
+		next, ok := 0, false
+		if whole {
+			var e int
+			if e, ok = p.quickRow(s, pos, -1, x, &row); ok {
+				next = e + 1
+				if s[e] == '\r' {
+					next++
+				}
+			}
+		}
+		if !ok {
+			hi := len(s)
+			next = len(s)
+			if e := strings.IndexByte(s[pos:], '\n'); e >= 0 {
+				hi = pos + e
+				next = hi + 1
+			}
+			if hi > pos && s[hi-1] == '\r' {
+				hi--
+			}
+			if hi == pos { // an empty line, skipped as the CSV reader skips it
+				line++
+				pos = next
+				continue
+			}
+			if c.quotes && strings.IndexByte(s[pos:hi], '"') >= 0 {
+				break
+			}
+			if p.plain && !whole {
+				_, ok = p.quickRow(s, pos, hi, x, &row)
+			}
+			if !ok && !r.fastRow(p, t, s, pos, hi, x, &row) {
+				break
+			}
 		}
 		line++
 		d.RowsRead++
@@ -254,61 +273,76 @@ func (r *reader) fastRow(p *fastPlan, t *rowTally, s string, i, hi int, x []floa
 	return true
 }
 
-// quickSlack is the number of bytes of the text quickRow needs after a
-// line: it reads eight bytes at a time, up to nine bytes past the line.
-const quickSlack = 16
+// quickSlack is the number of bytes of the text quickRow needs after the
+// start of a field: it reads eight bytes at a time, a cell of at most 16
+// bytes and what follows it.
+const quickSlack = 24
 
-// quickRow reads the line s[i:hi] as fastRow would, for a plan whose used
-// fields are all numbers and integer codes (plain), when every used cell
-// is written plainly: an optional sign, at most seven digits, and for a
-// number an optional decimal mark and at most seven digits, then the
+// quickRow reads the line from s[i] as fastRow would, for a plan whose
+// used fields are all numbers and integer codes (plain), when every used
+// cell is written plainly: an optional sign, at most seven digits, and for
+// a number an optional decimal mark and at most seven digits, then the
 // delimiter (or the line end). The digits are found and read eight bytes
-// at a time, in line, with no call per field. False for any other line,
-// which fastRow then reads (or gives to the general way); at least
-// quickSlack bytes of s must follow hi.
-func (p *fastPlan) quickRow(s string, i, hi int, x []float64, row *cells) bool {
+// at a time, in line, with no call per field. It returns where the last
+// field ends: at hi, the line's end as fastLines finds it, or when hi is
+// -1 (a plan without unused fields: whole, found here) at a line feed or
+// a CR and a line feed. False for any other line, which fastRow then
+// reads (or gives to the general way).
+func (p *fastPlan) quickRow(s string, i, hi int, x []float64, row *cells) (int, bool) {
 	*row = cells{miss: -1, w: 1}
 	last := len(p.fields) - 1
 	for fi := range p.fields {
 		f := &p.fields[fi]
+		if i+quickSlack > len(s) {
+			return 0, false
+		}
 		if f.kind == fastSkip {
-			e := strings.IndexByte(s[i:hi], p.delim)
+			e := -1
+			if hi >= 0 {
+				e = strings.IndexByte(s[i:hi], p.delim)
+			}
 			if e < 0 {
 				e = hi
 			} else {
 				e += i
 			}
-			if (fi == last) != (e == hi) {
-				return false
+			if e < 0 || (fi == last) != (e == hi) {
+				return 0, false
 			}
 			i = e + 1
 			continue
 		}
 		// The sign, then the digits before the mark: those below the
-		// first byte that is not a digit, moved to the top of the word.
+		// first byte that is not a digit, moved to the top of the word
+		// (for n = 8, when the shift is 0 mod 64, the cell is refused).
 		sg := signs[s[i]]
 		j := i + int(sg&1)
 		w := load8(s, j)
 		nd := nonDigits(w)
 		n := bits.TrailingZeros64(nd) >> 3
-		mant := eightDigits(w << (64 - 8*n))
+		mant := eightDigits(w << (uint(56-8*n) & 63) << 8)
 		j += n
 		m, nd2 := 0, uint64(1)
 		if s[j] == p.mark && f.kind != fastCode {
 			w = load8(s, j+1)
 			nd2 = nonDigits(w)
 			m = bits.TrailingZeros64(nd2) >> 3
-			mant = mant*pow10u[m] + eightDigits(w<<(64-8*m))
+			mant = mant*pow10u[m] + eightDigits(w<<(uint(56-8*m)&63)<<8)
 			j += m + 1
 		}
-		end := j == hi
-		if fi < last {
+		var end bool
+		switch {
+		case fi < last:
 			end = s[j] == p.delim
+		case hi >= 0:
+			end = j == hi
+		default:
+			end = s[j] == '\n' || s[j] == '\r' && s[j+1] == '\n'
 		}
 		// Eight digits in a row (perhaps more), no digit at all, or
 		// anything else after the number: not for this way.
 		if nd == 0 || nd2 == 0 || n+m == 0 || !end {
-			return false
+			return 0, false
 		}
 		i = j + 1
 		if f.kind == fastCode {
@@ -323,14 +357,14 @@ func (p *fastPlan) quickRow(s string, i, hi int, x []float64, row *cells) bool {
 			x[f.pos] = v
 		case fastWeight:
 			if !(v >= 0) {
-				return false
+				return 0, false
 			}
 			row.w = v
 		case fastOffset:
 			row.off = v
 		}
 	}
-	return true
+	return i - 1, true
 }
 
 // skipSpace skips ASCII white space other than the delimiter from s[i],
