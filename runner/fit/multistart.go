@@ -459,16 +459,18 @@ func (p *problem) runStart(theta, anchor []float64, opt Options, best float64) n
 // runScreened is runStart for a screened start theta (a maximum of the
 // approximation sur) when a best log-likelihood is known: its first
 // evaluation asks for the score alone, with the approximation's second
-// derivatives standing in, and a start that this shows, with twice
-// runStart's margin, cannot reach the best is abandoned there (one pass
+// derivatives standing in (when they are concave there; not with
+// Options.KeepStarts), and a start that
+// this shows, with twice runStart's margin, cannot reach the best is
+// abandoned there (one pass
 // for the score instead of one with second derivatives; such starts lie
 // near a lower maximum, hundreds of log-likelihood units below the best on
 // large data). Any other start runs as runStart runs it.
 func (p *problem) runScreened(sur *surrogate, theta, anchor []float64, opt Options, best float64) newtonState {
-	if !math.IsInf(best, -1) {
+	if H := sur.hessian(theta); !math.IsInf(best, -1) && !opt.KeepStarts && concave(H, len(theta)) {
 		a := p.evaluator(opt.Scoring)(theta, 1)
 		if !a.bad {
-			_, dec, pd := newtonDirection(sur.hessian(theta), a.g)
+			_, dec, pd := newtonDirection(H, a.g)
 			if pd && 2*startGap*dec < best-sameLL-a.ll {
 				return newtonState{theta: theta, ll: a.ll, grad: a.g, decrement: dec, minLogP: a.minLogP, minKnown: a.minKnown,
 					reason: fmt.Sprintf("abandoned: it could not reach the best log-likelihood %.6f", best)}
@@ -476,6 +478,13 @@ func (p *problem) runScreened(sur *surrogate, theta, anchor []float64, opt Optio
 		}
 	}
 	return p.runStart(theta, anchor, opt, best)
+}
+
+// concave reports whether the second derivatives H (P x P, row-major) are
+// negative definite.
+func concave(H []float64, P int) bool {
+	_, _, pd := newtonDirection(H, make([]float64, P))
+	return pd
 }
 
 // bestLL is the best log-likelihood of the runs so far.
