@@ -460,12 +460,11 @@ func (p *problem) runStart(theta, anchor []float64, opt Options, best float64) n
 // approximation sur) when a best log-likelihood is known: its first
 // evaluation asks for the score alone, with the approximation's second
 // derivatives standing in (when they are concave there; not with
-// Options.KeepStarts), and a start that
-// this shows, with twice runStart's margin, cannot reach the best is
-// abandoned there (one pass
-// for the score instead of one with second derivatives; such starts lie
-// near a lower maximum, hundreds of log-likelihood units below the best on
-// large data). Any other start runs as runStart runs it.
+// Options.KeepStarts), and a start that this shows, with twice runStart's
+// margin, cannot reach the best is abandoned there (one pass for the score
+// instead of one with second derivatives; such starts lie near a lower
+// maximum, hundreds of log-likelihood units below the best on large data).
+// Any other start runs as runStart runs it.
 func (p *problem) runScreened(sur *surrogate, theta, anchor []float64, opt Options, best float64) newtonState {
 	if H := sur.hessian(theta); !math.IsInf(best, -1) && !opt.KeepStarts && concave(H, len(theta)) {
 		a := p.evaluator(opt.Scoring)(theta, 1)
