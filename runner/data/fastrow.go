@@ -142,17 +142,30 @@ func (r *reader) fastLines(p *fastPlan, c *chunk, lr *lineRecords) {
 	K := d.K
 	var row cells
 	whole := p.plain && !p.skips && !c.quotes // quickRow finds the line end
+	// After a line quickRow gives up on, the next lines skip it: one after
+	// the first, twice as many after each further one in a row, up to 64
+	// (in a file of long numbers it would give up on every line).
+	rest, fails := 0, 0
+	gaveUp := func() {
+		rest = 1 << min(fails, 6)
+		fails++
+	}
 	for pos < len(s) {
 		n := len(d.X)
 		x := d.X[n : n+K]
 		next, ok := 0, false
-		if whole {
+		if rest > 0 {
+			rest--
+		} else if whole {
 			var e int
 			if e, ok = p.quickRow(s, pos, -1, x, &row); ok {
 				next = e + 1
 				if s[e] == '\r' {
 					next++
 				}
+				fails = 0
+			} else {
+				gaveUp()
 			}
 		}
 		if !ok {
@@ -173,8 +186,12 @@ func (r *reader) fastLines(p *fastPlan, c *chunk, lr *lineRecords) {
 			if c.quotes && strings.IndexByte(s[pos:hi], '"') >= 0 {
 				break
 			}
-			if p.plain && !whole {
-				_, ok = p.quickRow(s, pos, hi, x, &row)
+			if p.plain && !whole && rest == 0 {
+				if _, ok = p.quickRow(s, pos, hi, x, &row); ok {
+					fails = 0
+				} else {
+					gaveUp()
+				}
 			}
 			if !ok && !r.fastRow(p, t, s, pos, hi, x, &row) {
 				break
