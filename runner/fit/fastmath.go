@@ -10,7 +10,8 @@ import (
 // over their fast ranges (fastmath_test.go measures the largest error
 // against high-precision values) and deferring to package math outside
 // them (special values, subnormal results, arguments near overflow).
-// Package math's exp on amd64 evaluates a long chain of dependent
+// Package math's exp on amd64 (which also overflows early, from about
+// 709.44 on) evaluates a long chain of dependent
 // multiplications and four squarings, and its log and log1p a division and
 // a long polynomial: in a kernel evaluated at every row and equation these
 // latencies, not the arithmetic, are the cost.
@@ -41,9 +42,14 @@ const (
 	// (ln2Hi has 32 significant bits), ln2Lo the remainder.
 	ln2Hi = 6.93147180369123816490e-01 // 0x3fe62e42fee00000
 	ln2Lo = 1.90821492927058770002e-10 // 0x3dea39ef35793c76
-	// expFast bounds the arguments taken by the table: beyond them
-	// results near overflow or subnormal are left to math.Exp.
-	expFast = 708.0
+	// expFast: above it the table's power of 2 is taken one lower and the
+	// result doubled (2^1024 is not a double); expOver: from it on e^x
+	// overflows (log of the largest double is 709.78...), left to
+	// math.Exp, as are subnormal results below -expFast. (Package math's
+	// amd64 exp overflows from about 709.44 on, early.)
+	expFast  = 708.0
+	expOver  = 710.0
+	expSmall = 700.0
 
 	logTableBits = 7
 	logN         = 1 << logTableBits
@@ -144,10 +150,10 @@ func bigLogAtanh(m *big.Float, prec uint) *big.Float {
 	return sum.Mul(sum, new(big.Float).SetPrec(prec).SetInt64(2))
 }
 
-// fastExp is e^x to about half an ulp (math.Exp beyond |x| <= 708, for
+// fastExp is e^x within 0.51 ulp (math.Exp below -708, from 710 on, for
 // NaN and infinities).
 func fastExp(x float64) float64 {
-	if !(x >= -expFast && x <= expFast) {
+	if !(x >= -expFast && x < expOver) {
 		return math.Exp(x)
 	}
 	z := x * (expN / math.Ln2)
@@ -159,13 +165,29 @@ func fastExp(x float64) float64 {
 	// 2^k 2^(j/N): k added to the exponent of the table's double (k is
 	// ki >> 7 as a signed integer; the offset of expShift is a multiple of
 	// 2^64 after the shift by 45).
-	scale := math.Float64frombits(math.Float64bits(t.hi) + (ki>>expTableBits)<<52)
+	// Near either end the power of 2 is moved into range and the result
+	// scaled back at the end (exactly, the result being normal, or the
+	// overflow to +Inf): 2^1024 is not a double, and below 2^-1012 the
+	// product scale*p would be subnormal and lose digits.
+	k := ki >> expTableBits
+	f := 0.0
+	switch {
+	case x > expFast:
+		k, f = k-1, 2
+	case x < -expSmall:
+		k, f = k+64, 0x1p-64
+	}
+	scale := math.Float64frombits(math.Float64bits(t.hi) + k<<52)
 	r2 := r * r
 	p := t.tail + r + r2*(1.0/2+r*(1.0/6)) + r2*r2*(1.0/24+r*(1.0/120))
-	return scale + scale*p
+	v := scale + scale*p
+	if f != 0 {
+		v *= f
+	}
+	return v
 }
 
-// fastLog is log x to about half an ulp (math.Log for x <= 0, subnormal x,
+// fastLog is log x within 0.71 ulp (math.Log for x <= 0, subnormal x,
 // infinities and NaN).
 func fastLog(x float64) float64 {
 	ix := math.Float64bits(x)
@@ -178,7 +200,7 @@ func fastLog(x float64) float64 {
 	return logTable64(ix, 0)
 }
 
-// fastLog1p is log(1 + x) to about half an ulp for x >= 0 (math.Log1p for
+// fastLog1p is log(1 + x) within 0.85 ulp for x >= 0 (math.Log1p for
 // negative x, x of 2^1000 or more, infinities and NaN).
 func fastLog1p(x float64) float64 {
 	if !(x >= 0 && x < 0x1p1000) {
