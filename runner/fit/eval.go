@@ -698,10 +698,7 @@ func (p *problem) cumulativeKernels(c *coefs, lo, rows, order int, a *acc, s *sc
 	}
 	eta0, etaq := eta[:rows], eta[(q-1)*es:(q-1)*es+rows]
 	for i, yi := range y {
-		wi := 1.0
-		if w != nil {
-			wi = w[i]
-		}
+		wi := weightOf(w, i)
 		if wi == 0 {
 			continue
 		}

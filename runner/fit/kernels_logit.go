@@ -42,6 +42,15 @@ func (p *problem) kernelColumns(lo, rows, order int, s *scratch) (gs, hp, w []fl
 	return gs, hp, w
 }
 
+// weightOf is the weight of row i of a block whose weights are w (nil:
+// all 1).
+func weightOf(w []float64, i int) float64 {
+	if w == nil {
+		return 1
+	}
+	return w[i]
+}
+
 // tailKernels is blockKernels for a stage or stacked model under the logit
 // link with observed derivatives: per row the log-tails of the equations
 // kernel.tailRange gives (one exponential each, one log1p for all), the
@@ -52,10 +61,7 @@ func (p *problem) tailKernels(c *coefs, lo, rows, order int, a *acc, s *scratch)
 	y := p.d.y[lo : lo+rows]
 	gs, hp, w := p.kernelColumns(lo, rows, order, s)
 	for i, yi := range y {
-		wi := 1.0
-		if w != nil {
-			wi = w[i]
-		}
+		wi := weightOf(w, i)
 		if wi == 0 {
 			continue
 		}
@@ -99,10 +105,7 @@ func (p *problem) adjacentKernels(c *coefs, lo, rows, order int, a *acc, s *scra
 	var lbuf, sbuf, pbuf [16]float64
 	L, sv, P := lbuf[:q], sbuf[:q+1], pbuf[:q+1]
 	for i, yi := range y {
-		wi := 1.0
-		if w != nil {
-			wi = w[i]
-		}
+		wi := weightOf(w, i)
 		if wi == 0 {
 			continue
 		}
@@ -157,10 +160,7 @@ func (p *problem) binaryKernels(c *coefs, lo, rows, order int, a *acc, s *scratc
 	}
 	y = y[:len(eta)]
 	for i, yi := range y {
-		wi := 1.0
-		if w != nil {
-			wi = w[i]
-		}
+		wi := weightOf(w, i)
 		e, l := ex[i], lg[i]
 		ex[i], lg[i] = 0, 0
 		if wi == 0 {
