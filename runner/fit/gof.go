@@ -128,10 +128,9 @@ func (t *ScoreGroups) count(d *Data, i, g int, score, probs []float64) {
 	}
 }
 
-// LipsitzTest is the Lipsitz, Fitzmaurice and Molenberghs (1996) test of
-// fit r on its data d: rows grouped by the ordinal score (GroupByScore),
-// the model refitted with indicators of groups 1..G-1 as parallel
-// predictors, and the likelihood ratio of that fit against r on G-1
+// LipsitzTest is the Lipsitz test of fit r on its data d: rows grouped by
+// the ordinal score (GroupByScore), the model refitted with indicators of
+// groups 1..G-1 as parallel predictors, and the likelihood ratio of that fit against r on G-1
 // degrees of freedom. A small p-value says the model misses a pattern
 // along its own predicted score.
 func LipsitzTest(d *Data, r *Result, groups int, opt Options) (*Lipsitz, error) {

@@ -224,9 +224,12 @@ type reusedLast struct {
 // decrement prevDec standing in: ok when the decrement with H is small
 // enough to end (see newtonLoopStop) and the last step, evaluated with
 // second derivatives, rises and is confirmed by its own decrement (at most
-// 1e-10 |LL|). taken: the step rose but was not confirmed (which happens
-// only far from a maximum, such as along a direction in which the
-// log-likelihood keeps rising); the iterations go on from there.
+// 1e-16 |LL|, the bound at which the ordinary rule ends at once, so that a
+// poor stand-in cannot end the rule farther from the maximum than the
+// ordinary last step would). taken: the step rose but was not confirmed
+// (a stand-in far from the point's own information, or far from a
+// maximum, such as along a direction in which the log-likelihood keeps
+// rising); the iterations go on from there with the point's own.
 func lastStepReused(ev evalFunc, theta []float64, ll float64, g, H []float64, prevDec, scale float64) (last reusedLast, taken, ok bool) {
 	d, dec, pd := newtonDirection(H, g)
 	if !pd || dec > 1e-10*scale || dec*dec > 1e-24*scale*prevDec {
@@ -238,7 +241,7 @@ func lastStepReused(ev evalFunc, theta []float64, ll float64, g, H []float64, pr
 		return last, false, false
 	}
 	last = reusedLast{evalOut: b, theta: next, dec: dec}
-	if _, own, pd := newtonDirection(b.H, b.g); !pd || own > 1e-10*scale {
+	if _, own, pd := newtonDirection(b.H, b.g); !pd || own > 1e-16*scale {
 		return last, true, false
 	}
 	return last, true, true

@@ -67,8 +67,8 @@ func (p *problem) rowScores(theta []float64, fn func(i int, s []float64)) error 
 //
 // with N the number of observations (sum of frequency weights, or rows for
 // sampling weights), P the parameters and G the clusters. These are the
-// usual estimators of White (1980) and Liang & Zeger (1986) with their
-// customary small-sample factors.
+// usual heteroskedasticity-consistent and cluster-robust sandwich
+// estimators with their customary small-sample factors.
 //
 // kind is Sandwich, SandwichPlain (no small-sample factor) or Clustered
 // (which needs clusters, one id per row).
