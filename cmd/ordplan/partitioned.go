@@ -47,8 +47,15 @@ func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, std
 	}
 	var lz *fit.Lipsitz
 	if res.OK() {
+		// A failed test (a worker's error, an oversized reply, no reply
+		// in time) is a test not computed, as on the local path: the fit
+		// itself is done and is printed.
+		// An interrupt still stops the command.
 		if lz, err = queue.LipsitzPartitioned(ctx, c, refs, whole, res, popt); err != nil {
-			return fail(stderr, err)
+			if ctx.Err() != nil {
+				return fail(stderr, err)
+			}
+			lz = &fit.Lipsitz{Test: fit.Test{Name: "lipsitz", Reason: "over the parts: " + err.Error()}}
 		}
 	}
 	checks, err := runner.PartitionedChecks(s, res, parts, whole, lz)

@@ -641,3 +641,39 @@ func splitInTurn(src []byte, k int) [][]byte {
 	}
 	return out
 }
+
+// When the Lipsitz test over the parts fails (here its scores jobs get no
+// reply within the job deadline), ordplan fit --parts --queue still prints
+// the fit, with the test marked not tested and why, and exits 0: the same
+// estimates as the local fit (General Social Survey extract, Long 1997).
+func TestFitPartsLipsitzFailureKeepsFit(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts worker processes")
+	}
+	url := localserver.ForTest(t)
+	startProc(t, []string{holdEnv + "=120s", holdKindEnv + "=" + queue.KindScores},
+		"worker", "--queue", url, "--name", "stuck", "--jobs", "3", "--ack-wait", "60s", "--cache", t.TempDir()).
+		waitLog(t, 20*time.Second, "ready")
+	parts := gssParts(t, 3)
+	args := []string{"fit", "--outcome", "warm", "--categories", "1,2,3,4", "--predictors", "yr89,male,white,age,ed,prst"}
+	local, errs, code := runCLI(append(args, "--data", filepath.Join(refDir, "gsswarm.csv"))...)
+	if code != 0 {
+		t.Fatal(errs)
+	}
+	r := waitRun(t, runAsync(append(args, "--queue", url, "--job-deadline", "5s", "--parts", strings.Join(parts, ","))...), 120*time.Second)
+	if !strings.Contains(r[0], "\nLipsitz test: not tested: over the parts: ") {
+		t.Errorf("no line saying the Lipsitz test was not computed:\n%s\n%s", r[0], r[1])
+	}
+	withoutLipsitz := func(s string) string {
+		var keep []string
+		for _, l := range strings.Split(sameLines(s), "\n") {
+			if !strings.HasPrefix(l, "Lipsitz test") {
+				keep = append(keep, l)
+			}
+		}
+		return strings.Join(keep, "\n")
+	}
+	if withoutLipsitz(local) != withoutLipsitz(r[0]) {
+		t.Errorf("the fit over parts prints otherwise than the local one:\n%s\n---\n%s", local, r[0])
+	}
+}
