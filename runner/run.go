@@ -84,6 +84,7 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 func runOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash func() string) (*OutcomeResult, error) {
 	var notes []string
 	if an.Imputed != nil || an.Imputes() {
+		dataHash() // the imputed path reads the data itself: the hash first
 		or, err := runImputedOutcome(an, r, oc, opt)
 		if !errors.Is(err, errNothingToImpute) {
 			return or, err
