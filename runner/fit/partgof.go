@@ -1,6 +1,7 @@
 package fit
 
 import (
+	"cmp"
 	"errors"
 	"fmt"
 	"math"
@@ -51,12 +52,15 @@ type ScoreQuery struct {
 }
 
 // KeyRange is a range of score keys (orderedBits) Lo..Hi: counted by
-// buckets of keys (key-Lo)>>Shift, or with Rows, the rows themselves.
+// buckets of keys (key-Lo)>>Shift, or with Rows, the rows themselves;
+// with Rows and Distinct, each key once, in order, with its rows' total
+// weight.
 type KeyRange struct {
-	Lo    uint64 `json:"lo"`
-	Hi    uint64 `json:"hi"`
-	Shift uint   `json:"shift"`
-	Rows  bool   `json:"rows"`
+	Lo       uint64 `json:"lo"`
+	Hi       uint64 `json:"hi"`
+	Shift    uint   `json:"shift"`
+	Rows     bool   `json:"rows"`
+	Distinct bool   `json:"distinct,omitempty"`
 }
 
 // ScoreAnswer is a part's answer to a ScoreQuery.
@@ -248,11 +252,36 @@ func (a *ScoreAnswer) ranges(d *Data, score []float64, rs []KeyRange) {
 				continue
 			}
 			a.Keys[j] = append(a.Keys[j], k)
-			if d.Weights != nil {
-				a.Weight[j] = append(a.Weight[j], d.Weights[i])
+			if d.Weights != nil || r.Distinct {
+				a.Weight[j] = append(a.Weight[j], d.weightOf(i))
 			}
 		}
 	}
+	for j, r := range rs {
+		if r.Distinct {
+			a.Keys[j], a.Weight[j] = distinctKeys(a.Keys[j], a.Weight[j])
+		}
+	}
+}
+
+// distinctKeys is each of keys once, in order, with the total of its
+// weights (whole weights: exact in any order).
+func distinctKeys(keys []uint64, weights []float64) ([]uint64, []float64) {
+	order := make([]int, len(keys))
+	for i := range order {
+		order[i] = i
+	}
+	slices.SortStableFunc(order, func(a, b int) int { return cmp.Compare(keys[a], keys[b]) })
+	var dk []uint64
+	var dw []float64
+	for _, i := range order {
+		if n := len(dk); n > 0 && dk[n-1] == keys[i] {
+			dw[n-1] += weights[i]
+			continue
+		}
+		dk, dw = append(dk, keys[i]), append(dw, weights[i])
+	}
+	return dk, dw
 }
 
 // groupOfKey is the group of a score key under cuts.
@@ -527,9 +556,21 @@ func (c *partCut) ask(rs []KeyRange) ([]*ScoreAnswer, error) {
 func (c *partCut) byCounts(lo, hi uint64) error {
 	pending := []pendingRange{{lo: lo, hi: hi, weight: c.total}}
 	for len(pending) > 0 {
+		// A range of one key is one run of equal scores whose weight is
+		// known: it goes whole to the group of its weighted midpoint, with
+		// no question to the parts.
+		pending = slices.DeleteFunc(pending, func(p pendingRange) bool {
+			if p.lo == p.hi {
+				c.segments = append(c.segments, keySegment{p.lo, p.hi, groupOf(p.cum, p.weight, c.total, c.groups)})
+			}
+			return p.lo == p.hi
+		})
+		if len(pending) == 0 {
+			break
+		}
 		rs := make([]KeyRange, len(pending))
 		for j, p := range pending {
-			rs[j] = KeyRange{Lo: p.lo, Hi: p.hi, Rows: p.weight <= gatherBelow || p.lo == p.hi}
+			rs[j] = KeyRange{Lo: p.lo, Hi: p.hi, Rows: p.weight <= gatherBelow, Distinct: p.weight <= gatherBelow}
 			for !rs[j].Rows && rs[j].buckets() > rangeBuckets {
 				rs[j].Shift++
 			}

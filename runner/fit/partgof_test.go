@@ -11,6 +11,7 @@ import (
 type localParts struct {
 	parts []*Data
 	asked int // queries of the cut and the table
+	keys  int // score keys sent by the parts
 }
 
 func (l *localParts) Ask(q *ScoreQuery) ([]*ScoreAnswer, error) {
@@ -23,6 +24,9 @@ func (l *localParts) Ask(q *ScoreQuery) ([]*ScoreAnswer, error) {
 		}
 		if err := a.CheckShape(q, p.J); err != nil {
 			return nil, err
+		}
+		for _, k := range a.Keys {
+			l.keys += len(k)
 		}
 		out = append(out, a)
 	}
@@ -156,6 +160,46 @@ func TestLipsitzOverPartsTies(t *testing.T) {
 		}
 		if got.Test.OK != local.Test.OK || got.Test.Reason != local.Test.Reason || math.Abs(got.Test.Chi2-local.Test.Chi2) > 1e-6 {
 			t.Errorf("%v: %+v, want %+v", cols, got.Test, local.Test)
+		}
+	}
+}
+
+// With discrete predictors many rows share each score, and a run of equal
+// scores across a cut is placed from its total weight: the groups are
+// LipsitzTest's row for row, and the parts send (almost) no score keys
+// (General Social Survey extract, Long 1997, its rows repeated 50 times:
+// 114,650 rows).
+func TestLipsitzOverPartsDiscreteSendsFewKeys(t *testing.T) {
+	rs := loadRef(t, "gsswarm")
+	for _, cols := range [][]string{{"male"}, {"yr89", "male"}, {"yr89", "male", "white"}, {"yr89", "male", "white", "ed"}} {
+		one := rs.data(cols)
+		d := *one
+		d.Y, d.X = nil, nil
+		for range 50 {
+			d.Y = append(d.Y, one.Y...)
+			d.X = append(d.X, one.X...)
+		}
+		m := Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(len(cols), Parallel)}
+		r := fitOK(t, &d, m)
+		local, err := LipsitzTest(&d, r, 0, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		parts, w := splitParts(&d, 4)
+		lp := &localParts{parts: parts}
+		got, err := LipsitzOverParts(r, w, lp, 0, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		t.Logf("%v: %d rows, %d queries, %d keys sent; %+v", cols, d.N(), lp.asked, lp.keys, got.Test)
+		if local.Table.Groups != got.Table.Groups || !slices.Equal(local.Table.Weight, got.Table.Weight) {
+			t.Errorf("%v: groups %v, want %v", cols, got.Table.Weight, local.Table.Weight)
+		}
+		if got.Test.OK != local.Test.OK || got.Test.Reason != local.Test.Reason || math.Abs(got.Test.Chi2-local.Test.Chi2) > 1e-6 {
+			t.Errorf("%v: %+v, want %+v", cols, got.Test, local.Test)
+		}
+		if lp.keys > 1000 {
+			t.Errorf("%v: the parts sent %d score keys", cols, lp.keys)
 		}
 	}
 }
