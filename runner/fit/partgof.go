@@ -157,9 +157,18 @@ func (q *ScoreQuery) check() error {
 	if len(q.Ranges) > maxKeyRanges || len(q.Cuts) > maxKeyRanges {
 		return fmt.Errorf("a score query with %d ranges and %d cuts", len(q.Ranges), len(q.Cuts))
 	}
-	for _, r := range q.Ranges {
+	buckets := 0
+	for j, r := range q.Ranges {
 		if r.Hi < r.Lo || r.Shift > 63 || !r.Rows && r.buckets() > maxBuckets {
 			return fmt.Errorf("a score query's range %d..%d by %d bits", r.Lo, r.Hi, r.Shift)
+		}
+		if j > 0 && r.Lo <= q.Ranges[j-1].Hi {
+			return fmt.Errorf("a score query's ranges out of order or overlapping (%d..%d after %d..%d)", r.Lo, r.Hi, q.Ranges[j-1].Lo, q.Ranges[j-1].Hi)
+		}
+		if !r.Rows {
+			if buckets += r.buckets(); buckets > maxBuckets {
+				return fmt.Errorf("a score query of more than %d buckets in all", maxBuckets)
+			}
 		}
 	}
 	if !slices.IsSorted(q.Cuts) {
@@ -338,6 +347,9 @@ func (a *ScoreAnswer) CheckShape(q *ScoreQuery, J int) error {
 		if a.Span.Rows < 0 || math.IsNaN(a.Span.Weight) || math.IsInf(a.Span.Weight, 0) || a.Span.Weight < 0 {
 			return fmt.Errorf("a span of %d rows of weight %g", a.Span.Rows, a.Span.Weight)
 		}
+		if a.Span.Rows > 0 && !a.Span.NaN && a.Span.Lo > a.Span.Hi {
+			return fmt.Errorf("a span of keys %d..%d", a.Span.Lo, a.Span.Hi)
+		}
 	case StepRanges:
 		if len(a.Counts) != len(q.Ranges) || len(a.Keys) != len(q.Ranges) || len(a.Weight) != len(q.Ranges) {
 			return fmt.Errorf("answers for %d, %d and %d ranges where %d were asked", len(a.Counts), len(a.Keys), len(a.Weight), len(q.Ranges))
@@ -350,6 +362,8 @@ func (a *ScoreAnswer) CheckShape(q *ScoreQuery, J int) error {
 				return fmt.Errorf("range %d: %d weights for %d rows", j+1, len(a.Weight[j]), len(a.Keys[j]))
 			case !finite(a.Counts[j]) || !finite(a.Weight[j]):
 				return fmt.Errorf("range %d: a weight that is not a finite number", j+1)
+			case !nonNegative(a.Counts[j]) || !nonNegative(a.Weight[j]):
+				return fmt.Errorf("range %d: a negative weight", j+1)
 			}
 			for _, k := range a.Keys[j] {
 				if k < r.Lo || k > r.Hi {
@@ -364,12 +378,15 @@ func (a *ScoreAnswer) CheckShape(q *ScoreQuery, J int) error {
 			return fmt.Errorf("a calibration table without its %d groups", G)
 		}
 		for g := 0; g < G; g++ {
-			if len(t.Observed[g]) != J || len(t.Expected[g]) != J || !finite(t.Observed[g]) || !finite(t.Expected[g]) {
-				return fmt.Errorf("group %d of the calibration table without its %d finite counts", g+1, J)
+			if len(t.Observed[g]) != J || len(t.Expected[g]) != J || !finite(t.Observed[g]) || !finite(t.Expected[g]) || !nonNegative(t.Observed[g]) || !nonNegative(t.Expected[g]) {
+				return fmt.Errorf("group %d of the calibration table without its %d finite non-negative counts", g+1, J)
+			}
+			if math.IsNaN(t.Low[g]) || math.IsNaN(t.High[g]) {
+				return fmt.Errorf("group %d of the calibration table with a score that is not a number", g+1)
 			}
 		}
-		if !finite(t.Weight) {
-			return errors.New("a calibration table weight that is not a finite number")
+		if !finite(t.Weight) || !nonNegative(t.Weight) {
+			return errors.New("a calibration table weight that is not a finite non-negative number")
 		}
 	case StepMoments:
 		m := a.Moments
@@ -378,6 +395,16 @@ func (a *ScoreAnswer) CheckShape(q *ScoreQuery, J int) error {
 		}
 	}
 	return nil
+}
+
+// nonNegative says no value of v is below 0.
+func nonNegative(v []float64) bool {
+	for _, x := range v {
+		if x < 0 {
+			return false
+		}
+	}
+	return true
 }
 
 // ScoreParts asks the parts of a data set, in their order, what the

@@ -3,6 +3,7 @@ package fit
 import (
 	"math"
 	"slices"
+	"strings"
 	"testing"
 )
 
@@ -200,6 +201,57 @@ func TestLipsitzOverPartsDiscreteSendsFewKeys(t *testing.T) {
 		}
 		if lp.keys > 1000 {
 			t.Errorf("%v: the parts sent %d score keys", cols, lp.keys)
+		}
+	}
+}
+
+// A part refuses a score query whose ranges are out of order, overlap or
+// ask more buckets in all than it counts, and the coordinator refuses an
+// answer with negative weights, a span whose keys run backwards or a
+// table score that is not a number.
+func TestScoreQueryAndAnswerChecks(t *testing.T) {
+	for _, c := range []struct {
+		rs   []KeyRange
+		want string
+	}{
+		{[]KeyRange{{Lo: 10, Hi: 20, Rows: true}, {Lo: 0, Hi: 5, Rows: true}}, "out of order or overlapping"},
+		{[]KeyRange{{Lo: 0, Hi: 20, Rows: true}, {Lo: 20, Hi: 30, Rows: true}}, "out of order or overlapping"},
+		{[]KeyRange{{Lo: 0, Hi: maxBuckets - 1}, {Lo: maxBuckets, Hi: maxBuckets}}, "buckets in all"},
+	} {
+		q := &ScoreQuery{Step: StepRanges, Ranges: c.rs}
+		if err := q.check(); err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%v: %v, want %q", c.rs, err, c.want)
+		}
+	}
+	ok := &ScoreQuery{Step: StepRanges, Ranges: []KeyRange{{Lo: 0, Hi: 3}, {Lo: 4, Hi: 9, Rows: true}}}
+	if err := ok.check(); err != nil {
+		t.Fatal(err)
+	}
+	ranges := func(counts []float64, keys []uint64, w []float64) *ScoreAnswer {
+		return &ScoreAnswer{Counts: [][]float64{counts, nil}, Keys: [][]uint64{nil, keys}, Weight: [][]float64{nil, w}}
+	}
+	table := func(low, n, obs float64) *ScoreAnswer {
+		return &ScoreAnswer{Table: &ScoreGroups{Groups: 1, Low: []float64{low}, High: []float64{2}, Weight: []float64{n},
+			Observed: [][]float64{{obs, 1}}, Expected: [][]float64{{1, 1}}}}
+	}
+	tq := &ScoreQuery{Step: StepTable}
+	for _, c := range []struct {
+		q    *ScoreQuery
+		a    *ScoreAnswer
+		want string
+	}{
+		{ok, ranges([]float64{1, 0, 2, 1}, []uint64{5}, []float64{2}), ""},
+		{ok, ranges([]float64{1, -1, 2, 1}, []uint64{5}, []float64{2}), "negative weight"},
+		{ok, ranges([]float64{1, 0, 2, 1}, []uint64{5}, []float64{-2}), "negative weight"},
+		{&ScoreQuery{Step: StepSpan}, &ScoreAnswer{Span: ScoreSpan{Rows: 2, Weight: 2, Lo: 9, Hi: 3}}, "span of keys 9..3"},
+		{tq, table(1, 2, 1), ""},
+		{tq, table(math.NaN(), 2, 1), "not a number"},
+		{tq, table(1, -2, 1), "non-negative"},
+		{tq, table(1, 2, -1), "non-negative"},
+	} {
+		err := c.a.CheckShape(c.q, 2)
+		if c.want == "" && err != nil || c.want != "" && (err == nil || !strings.Contains(err.Error(), c.want)) {
+			t.Errorf("%+v: %v, want %q", c.a, err, c.want)
 		}
 	}
 }

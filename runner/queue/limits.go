@@ -69,6 +69,8 @@ func (l Limits) check(t *Task) error {
 			return fmt.Errorf("job %s has %d parameters; this worker allows at most %d", t.ID, len(t.Part.Theta), l.Params)
 		case len(t.Part.DataOptions.Predictors) > l.Predictors:
 			return fmt.Errorf("job %s has %d predictors; this worker allows at most %d (ordplan worker --max-predictors)", t.ID, len(t.Part.DataOptions.Predictors), l.Predictors)
+		case t.Part.Score != nil && len(t.Part.DataOptions.Predictors)+len(t.Part.Score.Cuts) > l.Predictors:
+			return fmt.Errorf("job %s has %d predictors and %d score-group indicators; this worker allows at most %d columns (ordplan worker --max-predictors)", t.ID, len(t.Part.DataOptions.Predictors), len(t.Part.Score.Cuts), l.Predictors)
 		case t.Part.J > 1000 || t.Part.J < 2:
 			return fmt.Errorf("job %s has %d categories", t.ID, t.Part.J)
 		case t.Part.Order < 0 || t.Part.Order > 2:
