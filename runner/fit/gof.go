@@ -146,13 +146,20 @@ func LipsitzTest(d *Data, r *Result, groups int, opt Options) (*Lipsitz, error) 
 	}
 	// Phase 4: the model with group indicators.
 	full, err := lipsitzRefit(d, r, t, opt)
-	if err != nil {
-		out.Test = refitFailed(G, err)
-		return out, nil
-	}
-	out.Test = LRTest(r, full)
-	out.Test.Name = "lipsitz"
+	out.Test = lipsitzVerdict(r, full, G, err)
 	return out, nil
+}
+
+// lipsitzVerdict is the Lipsitz test of fit r against full, its refit with
+// the indicators of G score groups (or why the refit failed, err), on the
+// rows in one place or summed over parts alike.
+func lipsitzVerdict(r, full *Result, G int, err error) Test {
+	if err != nil {
+		return refitFailed(G, err)
+	}
+	t := LRTest(r, full)
+	t.Name = "lipsitz"
+	return t
 }
 
 // lipsitzRefit fits the model of r with the indicators of t's groups

@@ -71,6 +71,18 @@ func newtonLoop(theta0 []float64, maxIter int, ev evalFunc) newtonState {
 	return newtonLoopStop(theta0, maxIter, ev, nil)
 }
 
+// firstEvaluation evaluates the start of a Newton run (a copy of theta0)
+// with second derivatives; not ok, with the state to return, when the
+// start gives an observed category a zero probability.
+func firstEvaluation(theta0 []float64, ev evalFunc) (theta []float64, a evalOut, st newtonState, ok bool) {
+	theta = append([]float64(nil), theta0...)
+	if a = ev(theta, 2); a.bad {
+		st.theta, st.ll, st.reason = theta, math.Inf(-1), "the starting values give a zero probability to an observed category"
+		return theta, a, st, false
+	}
+	return theta, a, st, true
+}
+
 // stopFunc may end a Newton run early: called once per iteration that has
 // not converged, with the iteration, parameters, log-likelihood, Newton
 // decrement and whether the information was positive definite; a non-empty answer stops
@@ -94,11 +106,8 @@ type stopFunc func(it int, theta []float64, ll, dec float64, pd bool) string
 // derivatives, and the iterations go on exactly as if it had been so
 // from the start.
 func newtonLoopStop(theta0 []float64, maxIter int, ev evalFunc, stop stopFunc) newtonState {
-	theta := append([]float64(nil), theta0...)
-	st := newtonState{}
-	a := ev(theta, 2)
-	if a.bad {
-		st.theta, st.ll, st.reason = theta, math.Inf(-1), "the starting values give a zero probability to an observed category"
+	theta, a, st, ok := firstEvaluation(theta0, ev)
+	if !ok {
 		return st
 	}
 	ll := a.ll
@@ -368,11 +377,8 @@ const reuseInfoBelow = 1e-3
 // reached. The state's second derivatives are those of the information
 // used last (evaluated at an earlier point when kept).
 func maximumLoop(theta0 []float64, maxIter int, ev evalFunc) newtonState {
-	theta := append([]float64(nil), theta0...)
-	st := newtonState{}
-	a := ev(theta, 2)
-	if a.bad {
-		st.theta, st.ll, st.reason = theta, math.Inf(-1), "the starting values give a zero probability to an observed category"
+	theta, a, st, ok := firstEvaluation(theta0, ev)
+	if !ok {
 		return st
 	}
 	ll, g, H := a.ll, a.g, a.H

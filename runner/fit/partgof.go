@@ -488,12 +488,7 @@ func LipsitzOverParts(r *Result, w Whole, parts ScoreParts, groups int, opt Opti
 	full, err := FitFromSums(aw, am,
 		func(theta []float64, order int) (*Sums, error) { return parts.Sums(&cut, am, theta, order) },
 		func(theta []float64) (int, float64, error) { return parts.Diag(&cut, am, theta) }, opt)
-	if err != nil {
-		out.Test = refitFailed(G, err)
-		return out, nil
-	}
-	out.Test = LRTest(r, full)
-	out.Test.Name = "lipsitz"
+	out.Test = lipsitzVerdict(r, full, G, err)
 	return out, nil
 }
 
