@@ -95,8 +95,9 @@ type problem struct {
 	// the parallel columns and are summed by group rather than held in the
 	// block's columns (0: none, or they are held like any column).
 	parInd int
-	parAt  []int    // 0, 1, ..., Kp-1: where gatherRows puts the parallel columns
-	prof   *profile // optional timing of the cross-products
+	parAt  []int     // 0, 1, ..., Kp-1: where gatherRows puts the parallel columns
+	shape  pairShape // how pairs lie in a row's q x q second derivatives
+	prof   *profile  // optional timing of the cross-products
 	// first: the sums of an evaluation at one point, made otherwise
 	// (firstSums); last: the last evaluation to second order (lastSums).
 	first   *firstSums
@@ -139,6 +140,7 @@ func newProblem(d *design, m Model, ly *layout, workers int) *problem {
 		}
 	}
 	p.parAt = upTo(len(p.parCols))
+	p.shape = shapeOf(p.pairs, q)
 	if p.workers <= 0 {
 		p.workers = runtime.GOMAXPROCS(0)
 	}
@@ -334,6 +336,7 @@ type scratch struct {
 	rl, ru    []float64 // q x rows: sum_m H_ml per equation l; Kf q x rows: those times the per-equation columns
 	L, g, h   []float64
 	p         []float64
+	sums      []float64 // pairs: the constant's information pieces of a block (pairSums)
 }
 
 func (p *problem) newScratch() *scratch {
@@ -344,7 +347,7 @@ func (p *problem) newScratch() *scratch {
 		eta: make([]float64, rows*q), gs: make([]float64, rows*q),
 		hp: make([]float64, rows*len(p.pairs)), wt: make([]float64, rows),
 		L: make([]float64, q), g: make([]float64, q), h: make([]float64, q*q),
-		p: make([]float64, q+1),
+		p: make([]float64, q+1), sums: make([]float64, len(p.pairs)),
 	}
 	if kp > 0 {
 		s.rl = make([]float64, rows*q)
@@ -749,7 +752,12 @@ func (p *problem) cumulativeKernels(c *coefs, lo, rows, order int, a *acc, s *sc
 func (p *problem) blockScore(lo, rows int, a *acc, s *scratch) {
 	q := p.q
 	kf, kp := len(p.freeCols), len(p.parCols)
-	fullCross(a.V, kf, s.gs, q, s.uf, kf, rows, nil)
+	if kf == 1 {
+		// The constant alone: V is the sum of each equation's column.
+		columnSums(a.V, s.gs, rows)
+	} else {
+		fullCross(a.V, kf, s.gs, q, s.uf, kf, rows, nil)
+	}
 	if kp == 0 {
 		return
 	}
@@ -792,9 +800,12 @@ func (p *problem) indicatorScore(lo, rows, kp0 int, sg []float64, a *acc) {
 func (p *problem) blockInformation(lo, rows int, a *acc, s *scratch) {
 	q := p.q
 	kf, kp := len(p.freeCols), len(p.parCols)
-	hpair := func(pi int) []float64 { return s.hp[pi*rows : (pi+1)*rows] }
-	for pi := range p.pairs {
-		symCross(a.S[pi], kf, s.uf, kf, rows, hpair(pi))
+	if kf == 1 {
+		p.pairSums(rows, a, s)
+	} else {
+		for pi := range p.pairs {
+			symCross(a.S[pi], kf, s.uf, kf, rows, s.hp[pi*rows:(pi+1)*rows])
+		}
 	}
 	if kp == 0 {
 		return
@@ -806,48 +817,6 @@ func (p *problem) blockInformation(lo, rows int, a *acc, s *scratch) {
 	if p.parInd > 0 {
 		p.indicatorInformation(lo, rows, kp0, ru, a, s)
 	}
-}
-
-// rowWeights forms the weights of the parallel columns' information
-// pieces: wt (in s.wt), each row's sum_ml H_ml, and ru, each row's sum_m
-// H_ml for every equation l times the per-equation columns (rl itself
-// when the constant is the only one).
-func (p *problem) rowWeights(rows int, s *scratch) (wt, ru []float64) {
-	q, kf := p.q, len(p.freeCols)
-	hpair := func(pi int) []float64 { return s.hp[pi*rows : (pi+1)*rows] }
-	// sum_m H_ml for every l, from the pairs (H is symmetric), in the
-	// order of m; then their sum over l, the weights of the parallel block.
-	rl := s.rl[:q*rows]
-	clear(rl)
-	for pi, pr := range p.pairs {
-		h := hpair(pi)
-		addTo(rl[pr[0]*rows:(pr[0]+1)*rows], h)
-		if pr[1] != pr[0] {
-			addTo(rl[pr[1]*rows:(pr[1]+1)*rows], h)
-		}
-	}
-	wt = s.wt[:rows]
-	copy(wt, rl[:rows])
-	for l := 1; l < q; l++ {
-		addTo(wt, rl[l*rows:(l+1)*rows])
-	}
-	// The per-equation columns times sum_m H_ml; the constant column alone
-	// (parallel effects) is rl itself.
-	ru = rl
-	if kf > 1 {
-		ru = s.ru
-		for l := 0; l < q; l++ {
-			rll := rl[l*rows : (l+1)*rows]
-			for j := 0; j < kf; j++ {
-				dst := ru[(l*kf+j)*rows : (l*kf+j+1)*rows]
-				u := s.uf[j*rows : (j+1)*rows]
-				for i := range dst {
-					dst[i] = rll[i] * u[i]
-				}
-			}
-		}
-	}
-	return wt, ru
 }
 
 // indicatorInformation adds the information pieces of the indicator
