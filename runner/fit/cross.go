@@ -11,17 +11,20 @@ package fit
 // tile's accumulators start from the entry and go back to it after each
 // panel), the products are a_i (w_i b_i): the sums round exactly as a
 // plain row-by-row loop, so results do not depend on the tiling, the
-// panel size or the number of workers.
+// panel size or the number of workers. On amd64 with AVX2 an assembly
+// kernel forms the same sums (cross_amd64.go); these Go tiles are the path
+// everywhere else (cross_other.go) and its reference.
 
 // crossPanel is the number of rows of one panel.
 const crossPanel = 512
 
-// symCross adds to the lower triangle (diagonal included) of dst (k x k,
+// symCrossGo adds to the lower triangle (diagonal included) of dst (k x k,
 // row stride ldd) the sums over the n rows of u_i (w_i u_i)', where u_i is
 // row i of the k columns u[j*n:(j+1)*n]. A nil w weighs every row 1. The
 // upper triangle is left alone (mirrorLower fills it once all blocks are
-// summed).
-func symCross(dst []float64, ldd int, u []float64, k, n int, w []float64) {
+// summed). symCross (cross_amd64.go, cross_other.go) runs it, or the
+// assembly kernel where the build and the processor have one.
+func symCrossGo(dst []float64, ldd int, u []float64, k, n int, w []float64) {
 	col := func(j, lo, hi int) []float64 { return u[j*n+lo : j*n+hi] }
 	for lo := 0; lo < n; lo += crossPanel {
 		hi := min(lo+crossPanel, n)
@@ -67,11 +70,11 @@ func symCross(dst []float64, ldd int, u []float64, k, n int, w []float64) {
 	}
 }
 
-// fullCross adds to dst (ka x kb, row stride ldd) the sums over the n rows
-// of a_i (w_i b_i)', where a_i is row i of the ka columns of A and b_i of
-// the kb columns of B (both column-major with n rows). A nil w weighs every
-// row 1.
-func fullCross(dst []float64, ldd int, A []float64, ka int, B []float64, kb, n int, w []float64) {
+// fullCrossGo adds to dst (ka x kb, row stride ldd) the sums over the n
+// rows of a_i (w_i b_i)', where a_i is row i of the ka columns of A and b_i
+// of the kb columns of B (both column-major with n rows). A nil w weighs
+// every row 1. fullCross runs it, or the assembly kernel.
+func fullCrossGo(dst []float64, ldd int, A []float64, ka int, B []float64, kb, n int, w []float64) {
 	colA := func(j, lo, hi int) []float64 { return A[j*n+lo : j*n+hi] }
 	colB := func(j, lo, hi int) []float64 { return B[j*n+lo : j*n+hi] }
 	for lo := 0; lo < n; lo += crossPanel {

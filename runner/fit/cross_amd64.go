@@ -1,0 +1,163 @@
+//go:build amd64 && !purego
+
+package fit
+
+import "golang.org/x/sys/cpu"
+
+// The cross-products on amd64 processors with AVX2: the sums of cross.go,
+// to the last bit, formed by an assembly kernel (cross_amd64.s, written by
+// cross_asm_gen.go) in register tiles of 4 columns of A by 8 columns of B.
+// The kernel takes four rows at a time: it loads four rows of four columns
+// of B (weighted), turns them in registers so that one register holds one
+// row of the four columns, and adds a_ri (w_i b_i) to the sums of each
+// column of A, row after row. Entries are vectorized across columns, never
+// across rows, and each product is rounded before it is added (no fused
+// multiply-add, as in the Go tiles): every entry is still one running sum
+// over the rows in order, so the assembly and the Go tiles give the same
+// bits, whatever the machine.
+
+//go:generate go run cross_asm_gen.go
+
+// crossAsm reports whether symCross and fullCross use the assembly kernel:
+// the processor and the operating system support AVX2 (tests set it false
+// to run the Go tiles).
+var crossAsm = cpu.X86.HasAVX2
+
+// crossAsmPanel is the number of rows of one panel of the assembly path.
+const crossAsmPanel = 512
+
+// crossKernelAVX2 adds to s[8r+c] (r < na, c < 4 or 8) the sums over
+// 4*quads rows i of a[r*lda+i] (w[i] b[oc+i]), where oc is 0, o1, o2, o3
+// for c = 0 to 3 and o4, o4+o1, o4+o2, o4+o3 for c = 4 to 7 (nb = 8); a
+// nil w weighs every row 1. na is 1 to 4, nb 4 or 8, quads at least 1.
+//
+//go:noescape
+func crossKernelAVX2(s *[32]float64, w, a *float64, lda, na int, b *float64, o1, o2, o3, o4, nb, quads int)
+
+// symCross adds to the lower triangle (diagonal included) of dst (k x k,
+// row stride ldd) the sums over the n rows of u_i (w_i u_i)', where u_i is
+// row i of the k columns u[j*n:(j+1)*n]. A nil w weighs every row 1. The
+// upper triangle is left alone (mirrorLower fills it once all blocks are
+// summed). The assembly kernel where the processor has AVX2, else
+// symCrossGo: the same bits.
+func symCross(dst []float64, ldd int, u []float64, k, n int, w []float64) {
+	if !crossAsm {
+		symCrossGo(dst, ldd, u, k, n, w)
+		return
+	}
+	var s [32]float64
+	for lo := 0; lo < n; lo += crossAsmPanel {
+		hi := min(lo+crossAsmPanel, n)
+		for a := 0; a < k; a += 4 {
+			na := min(4, k-a)
+			for b := 0; b < a+na; {
+				nb := crossTileWidth(a + na - b)
+				t := crossTile{a: a, na: na, b: b, nb: nb, lower: true}
+				t.load(&s, dst, ldd)
+				crossTileRows(&s, w, u, a, na, u, b, nb, n, lo, hi)
+				t.store(&s, dst, ldd)
+				b += nb
+			}
+		}
+	}
+}
+
+// fullCross adds to dst (ka x kb, row stride ldd) the sums over the n rows
+// of a_i (w_i b_i)', where a_i is row i of the ka columns of A and b_i of
+// the kb columns of B (both column-major with n rows). A nil w weighs every
+// row 1. The assembly kernel where the processor has AVX2, else
+// fullCrossGo: the same bits.
+func fullCross(dst []float64, ldd int, A []float64, ka int, B []float64, kb, n int, w []float64) {
+	if !crossAsm {
+		fullCrossGo(dst, ldd, A, ka, B, kb, n, w)
+		return
+	}
+	var s [32]float64
+	for lo := 0; lo < n; lo += crossAsmPanel {
+		hi := min(lo+crossAsmPanel, n)
+		for a := 0; a < ka; a += 4 {
+			na := min(4, ka-a)
+			for b := 0; b < kb; {
+				nb := crossTileWidth(kb - b)
+				t := crossTile{a: a, na: na, b: b, nb: nb}
+				t.load(&s, dst, ldd)
+				crossTileRows(&s, w, A, a, na, B, b, nb, n, lo, hi)
+				t.store(&s, dst, ldd)
+				b += nb
+			}
+		}
+	}
+}
+
+// crossTileWidth is the number of columns of B of the next tile when left
+// remain: 8, else at most 4.
+func crossTileWidth(left int) int {
+	if left >= 8 {
+		return 8
+	}
+	return min(4, left)
+}
+
+// crossTile is where a tile's sums stand in dst: entries (a+r, b+c) for
+// r < na, c < nb; lower: only those on or below the diagonal (b+c <= a+r).
+type crossTile struct {
+	a, na, b, nb int
+	lower        bool
+}
+
+// load copies the tile's entries from dst to s (s[8r+c]).
+func (t crossTile) load(s *[32]float64, dst []float64, ldd int) {
+	for r := 0; r < t.na; r++ {
+		row := dst[(t.a+r)*ldd:]
+		for c := 0; c < t.nb && (!t.lower || t.b+c <= t.a+r); c++ {
+			s[8*r+c] = row[t.b+c]
+		}
+	}
+}
+
+// store copies the tile's entries from s back to dst.
+func (t crossTile) store(s *[32]float64, dst []float64, ldd int) {
+	for r := 0; r < t.na; r++ {
+		row := dst[(t.a+r)*ldd:]
+		for c := 0; c < t.nb && (!t.lower || t.b+c <= t.a+r); c++ {
+			row[t.b+c] = s[8*r+c]
+		}
+	}
+}
+
+// crossTileRows adds to s[8r+c] (r < na, c < nb) the sums over rows lo to
+// hi of A[(a+r)*n+i] (w_i B[(b+c)*n+i]) (w nil: 1): the rows in groups of
+// four by the kernel, the last hi-lo mod 4 rows here, in order. nb is 1 to
+// 4, or 8; with fewer than 4 the kernel reads column b in place of the
+// missing ones, and their sums are not used.
+func crossTileRows(s *[32]float64, w, A []float64, a, na int, B []float64, b, nb, n, lo, hi int) {
+	quads := (hi - lo) / 4
+	if quads > 0 {
+		// The kernel reads within A's columns a to a+na-1 and B's
+		// columns b to b+nb-1, rows lo to hi: check their ends here.
+		_ = A[(a+na-1)*n+hi-1]
+		_ = B[(b+nb-1)*n+hi-1]
+		var wp *float64
+		if w != nil {
+			_ = w[hi-1]
+			wp = &w[lo]
+		}
+		var o [4]int
+		for c := 1; c < min(nb, 4); c++ {
+			o[c] = c * n
+		}
+		crossKernelAVX2(s, wp, &A[a*n+lo], n, na, &B[b*n+lo], o[1], o[2], o[3], 4*n, max(nb, 4), quads)
+	}
+	for i := lo + 4*quads; i < hi; i++ {
+		for r := 0; r < na; r++ {
+			x := A[(a+r)*n+i]
+			for c := 0; c < nb; c++ {
+				y := B[(b+c)*n+i]
+				if w != nil {
+					y = w[i] * y
+				}
+				s[8*r+c] += x * y
+			}
+		}
+	}
+}
