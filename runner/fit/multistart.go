@@ -29,6 +29,10 @@ type StartRecord struct {
 	// maximum coincided with (within 1e-6 in log-likelihood units); that
 	// fit's numbers are reported. Empty when the start had its own fit.
 	SharedWith string
+	// outOfReach: the start was abandoned on the approximation alone,
+	// which put its maximum at least this far below the best (LogLik is
+	// then NaN: no pass over the data was made for it).
+	outOfReach float64
 }
 
 // PhiNormalization is the common factor of one constraint group rescaled so
@@ -135,6 +139,12 @@ func multiStart(d *Data, m Model, ly *layout, pr *problem, opt Options, sh *shar
 				rec := owner.rec
 				rec.Label, rec.Iterations, rec.Screened, rec.SharedWith = s.label, 0, true, owner.rec.Label
 				byStart[i] = &runRecord{rec: rec, sur: sur}
+				continue
+			}
+			if short, out := aux.sur.outOfReach(sur, bestLL(runs)); out && !opt.KeepStarts {
+				// Abandoned on the approximation alone: no pass over the data.
+				byStart[i] = &runRecord{rec: StartRecord{Label: s.label, LogLik: math.NaN(), Status: StatusNotConverged, Screened: true, outOfReach: short,
+					Reason: fmt.Sprintf("abandoned: the approximation puts its maximum at least %.6g below the best log-likelihood %.6f", short, bestLL(runs))}, sur: sur}
 				continue
 			}
 			st := pr.runScreened(aux.sur, sur, runs[bestRun(runs)].st.theta, opt, bestLL(runs))

@@ -196,3 +196,67 @@ func (c *startsTally) check(t *testing.T) {
 		t.Error("no start was abandoned at its first evaluation: the check compares nothing")
 	}
 }
+
+// TestOutOfReachStartsEndBelow: a screened start that the approximation
+// around the partial fit puts out of reach of the best (outOfReach) is
+// abandoned without a pass over the data. Run to its end instead
+// (Options.KeepStarts), every such start ends at least as far below the
+// best log-likelihood as the approximation said, on every constrained and
+// stereotype reference record (sources: refSources) with the starts
+// screened, and on simulated data (ridgeData) for the three comparisons;
+// and the search chooses the same maximum either way (the bits, as in
+// TestKeepStartsSameMaximum).
+func TestOutOfReachStartsEndBelow(t *testing.T) {
+	type job struct {
+		label string
+		d     *Data
+		m     Model
+	}
+	var jobs []job
+	for _, name := range refNames {
+		rs := loadRef(t, name)
+		for _, rm := range rs.models {
+			if len(rm.Constrained) > 0 {
+				jobs = append(jobs, job{name + "/" + rm.ID + " (" + refSources[name] + ")", rs.data(rm.Predictors), rm.modelOf(t)})
+			}
+		}
+	}
+	rd := ridgeData(20000)
+	for _, c := range []Comparison{Cumulative, Stage, Adjacent} {
+		m := Model{Comparison: c, Link: Logit, Effects: make([]Effect, 10)}
+		m.Effects[0], m.Effects[1] = Constrained, Constrained
+		jobs = append(jobs, job{"ridgeData(20000)/" + c.String(), rd, m})
+	}
+	var tally startsTally
+	out := 0
+	for _, j := range jobs {
+		on, err := Fit(j.d, j.m, Options{ScreenAbove: -1})
+		if err != nil {
+			t.Fatalf("%s: %v", j.label, err)
+		}
+		off, err := Fit(j.d, j.m, Options{ScreenAbove: -1, KeepStarts: true})
+		if err != nil {
+			t.Fatalf("%s: %v", j.label, err)
+		}
+		tally.compare(t, j.label, on, off)
+		for i, s := range on.Starts {
+			if s.outOfReach == 0 {
+				continue
+			}
+			out++
+			kept := off.Starts[i]
+			below := on.LogLik - kept.LogLik
+			t.Logf("%s, %s: out of reach by %.4g; run to its end: %.6f, %.4g below (%s)", j.label, s.Label, s.outOfReach, kept.LogLik, below, kept.Reason)
+			if !math.IsNaN(s.LogLik) || s.Iterations != 0 {
+				t.Errorf("%s, %s: abandoned on the approximation, but loglik %v after %d iterations", j.label, s.Label, s.LogLik, s.Iterations)
+			}
+			if kept.ReachedBest || !(below >= s.outOfReach) {
+				t.Errorf("%s, %s: out of reach by %.6g, but run to its end it is %.6g below the best (reached %v)", j.label, s.Label, s.outOfReach, below, kept.ReachedBest)
+			}
+		}
+	}
+	t.Logf("%d starts abandoned on the approximation alone", out)
+	if out < 5 {
+		t.Errorf("only %d starts abandoned on the approximation alone: the check compares too little", out)
+	}
+}

@@ -51,7 +51,8 @@ func newAuxiliary(d *Data, m Model, ly *layout, opt Options, sh *shared) (*auxil
 	if partial, err := sh.fit(d, partM, o); err == nil && partial.OK() {
 		a.partial = partial
 		if info, err := invertSym(partial.Cov, len(partial.Estimates)); err == nil {
-			a.sur = &surrogate{rankMap: newRankMap(ly, pLy, m.Effects, nil), hat: partial.Estimates, info: info}
+			a.sur = &surrogate{rankMap: newRankMap(ly, pLy, m.Effects, nil), hat: partial.Estimates, info: info,
+				peak: partial.LogLik, weight: d.NObs()}
 		}
 	}
 	a.screen = a.sur != nil && d.N() > opt.screenAbove()
