@@ -437,7 +437,7 @@ func TestSourceEffectsAgainstFiniteDifferences(t *testing.T) {
 	}
 	for _, name := range []string{"age", "dose"} {
 		s := dz.Source(name)
-		h := 1e-4 * dz.SourceScale[s]
+		h := 1e-4 * dz.SourceScales()[s]
 		up := avgProb(func(raw []float64) { raw[s] += h })
 		down := avgProb(func(raw []float64) { raw[s] -= h })
 		for j := 0; j < J; j++ {

@@ -6,6 +6,7 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"sync"
 )
 
 // Term kinds.
@@ -49,8 +50,20 @@ type Design struct {
 	// Notes say what Build decided that the user should know (levels
 	// dropped because no row has them).
 	Notes []string
-	// Scale of each numeric source (sample SD, or 1), for numerical steps.
-	SourceScale []float64
+	// scales gives the scale of each numeric source (SourceScales), made
+	// when first asked for.
+	scales func() []float64
+}
+
+// SourceScales is the scale of each numeric source (its sample SD, or 1),
+// for numerical steps and the frozen design; taken from the rows on the
+// first call, since a plain design never asks for it (the rows are not
+// written after Build).
+func (d *Design) SourceScales() []float64 {
+	if d.scales == nil {
+		return nil
+	}
+	return d.scales()
 }
 
 // Error is a problem building a design: a term that cannot be built on
@@ -89,13 +102,20 @@ func Build(spec Spec, raw []float64, n int, w []float64, lines []int) (*Design, 
 // sample's (raw is not read).
 func build(spec Spec, raw []float64, n int, w []float64, lines []int, fz *Frozen) (*Design, error) {
 	S := len(spec.Sources)
-	d := &Design{Sources: spec.Sources, SourceScale: make([]float64, S)}
+	d := &Design{Sources: spec.Sources}
 	if fz != nil {
 		if len(fz.Terms) != len(spec.Terms) || len(fz.SourceScale) != S {
 			return nil, fmt.Errorf("frozen design: %d terms and %d scales for %d terms and %d columns", len(fz.Terms), len(fz.SourceScale), len(spec.Terms), S)
 		}
-		copy(d.SourceScale, fz.SourceScale)
+		scale := slices.Clone(fz.SourceScale)
+		d.scales = func() []float64 { return scale }
 		n = 0
+	} else {
+		d.scales = sync.OnceValue(func() []float64 {
+			scale := make([]float64, S)
+			sourceScales(scale, spec.Sources, raw, n, w)
+			return scale
+		})
 	}
 	col := func(s int) []float64 {
 		out := make([]float64, n)
@@ -103,9 +123,6 @@ func build(spec Spec, raw []float64, n int, w []float64, lines []int, fz *Frozen
 			out[i] = raw[i*S+s]
 		}
 		return out
-	}
-	if fz == nil {
-		sourceScales(d.SourceScale, spec.Sources, raw, n, w)
 	}
 	index := map[string]int{}
 	for k, ts := range spec.Terms {

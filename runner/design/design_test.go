@@ -187,7 +187,7 @@ func TestDerivativeThroughTerms(t *testing.T) {
 			if err := d.Derivative(r, s, out, der); err != nil {
 				t.Fatal(err)
 			}
-			h := 1e-5 * d.SourceScale[s]
+			h := 1e-5 * d.SourceScales()[s]
 			rp, rm := append([]float64(nil), r...), append([]float64(nil), r...)
 			rp[s] += h
 			rm[s] -= h

@@ -21,7 +21,7 @@ type Frozen struct {
 // Freeze returns the design's constants. spec must be the spec the design
 // was built from.
 func (d *Design) Freeze(spec Spec) *Frozen {
-	return &Frozen{Spec: spec, Terms: d.Records(), SourceScale: slices.Clone(d.SourceScale)}
+	return &Frozen{Spec: spec, Terms: d.Records(), SourceScale: slices.Clone(d.SourceScales())}
 }
 
 // Design makes the design again from its constants: the same columns,

@@ -71,8 +71,8 @@ func TestFrozenDesignRoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if !reflect.DeepEqual(again.Columns, d.Columns) || !reflect.DeepEqual(again.Notes, d.Notes) || !reflect.DeepEqual(again.SourceScale, d.SourceScale) {
-		t.Fatalf("columns, notes or scales differ:\n%v %v %v\n%v %v %v", again.Columns, again.Notes, again.SourceScale, d.Columns, d.Notes, d.SourceScale)
+	if !reflect.DeepEqual(again.Columns, d.Columns) || !reflect.DeepEqual(again.Notes, d.Notes) || !reflect.DeepEqual(again.SourceScales(), d.SourceScales()) {
+		t.Fatalf("columns, notes or scales differ:\n%v %v %v\n%v %v %v", again.Columns, again.Notes, again.SourceScales(), d.Columns, d.Notes, d.SourceScales())
 	}
 	a, _ := json.Marshal(again.Records())
 	b, _ := json.Marshal(d.Records())
