@@ -228,9 +228,9 @@ func fitFrom(d *Data, m Model, opt Options, base *rankSums) (*Result, error) {
 // fitFromWith is fitFrom, with the sums of the first evaluation at
 // first's point made from the fit it extends (nil: evaluated).
 func fitFromWith(d *Data, m Model, opt Options, base *rankSums, first *firstSums) (*Result, error) {
-	// Sums of a rank check come from a fit, after its data were validated:
-	// X's values were found finite then.
-	if err := d.validateRows(base.of(d)); err != nil {
+	// X's non-finite values are found by the rank check below (or were
+	// found when the sums it takes from base were formed).
+	if err := d.validateRows(true); err != nil {
 		return nil, err
 	}
 	return fitValid(d, m, opt, &shared{base: base, first: first})
@@ -335,9 +335,10 @@ func (d *Data) design() *design {
 
 func (d *Data) validate() error { return d.validateRows(false) }
 
-// validateRows is validate, which does not look for non-finite values in X
-// when finiteX says that they were looked for.
-func (d *Data) validateRows(finiteX bool) error {
+// validateRows is validate, which leaves the non-finite values of X to
+// the rank check that follows when rankNext is set: its first pass over
+// the rows finds them (checkRankWith), so X is not read an extra time.
+func (d *Data) validateRows(rankNext bool) error {
 	n, K := len(d.Y), d.width()
 	if d.J < 2 {
 		return inputErr("the outcome needs at least 2 categories, got %d", d.J)
@@ -374,9 +375,9 @@ func (d *Data) validateRows(finiteX bool) error {
 			return inputErr("row %d: offset %g is not finite", i+1, d.Offset[i])
 		}
 	}
-	if !finiteX {
-		if i := firstNonFinite(d.X); i >= 0 {
-			return inputErr("row %d: predictor %q has the non-finite value %g", i/K+1, d.Predictors[i%K], d.X[i])
+	if !rankNext {
+		if err := d.nonFiniteX(); err != nil {
+			return err
 		}
 	}
 	lv := d.categories()
@@ -393,6 +394,16 @@ func (d *Data) validateRows(finiteX bool) error {
 		seen[p] = true
 	}
 	return nil
+}
+
+// nonFiniteX refuses the first non-finite value of X (nil: none).
+func (d *Data) nonFiniteX() error {
+	i := firstNonFinite(d.X)
+	if i < 0 {
+		return nil
+	}
+	K := d.width()
+	return inputErr("row %d: predictor %q has the non-finite value %g", i/K+1, d.Predictors[i%K], d.X[i])
 }
 
 // firstNonFinite is the index of the first NaN or infinite value of x, or

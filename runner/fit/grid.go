@@ -113,7 +113,8 @@ func modelKey(m Model) string {
 // of these waits), so that the cores stay busy to the end. done is called
 // once per model, from the goroutine that fitted it, as each fit ends.
 func FitGrid(d *Data, models []Model, opt Options, workers int, done func(i int, res *Result, err error)) {
-	if err := d.validate(); err != nil {
+	// X's non-finite values: found by the rank check, shared by the fits.
+	if err := d.validateRows(true); err != nil {
 		for i := range models {
 			done(i, nil, err)
 		}

@@ -13,7 +13,7 @@ import (
 // weights, finite values, and predictors that are constant, collinear or
 // too large. Its errors are *InputError with a message for the user.
 func CheckDesign(d *Data) error {
-	if err := d.validate(); err != nil {
+	if err := d.validateRows(true); err != nil {
 		return err
 	}
 	_, err := d.checkRank(0)
@@ -51,6 +51,11 @@ func (d *Data) checkRankWith(workers int, base *rankSums) ([]float64, *rankSums,
 	// the same fit in any units (tested at 1e-100 and 1e100); outside, the
 	// predictor is refused with the factor that brings it back.
 	cs := d.columnSums(workers, nil, 0, base1)
+	if base1 == nil && cs.nonFinite() {
+		if err := d.nonFiniteX(); err != nil {
+			return nil, nil, err
+		}
+	}
 	for k := 0; k < K; k++ {
 		switch maxAbs := cs.maxAbs[k]; {
 		case maxAbs > maxScale:
@@ -294,6 +299,21 @@ func (c *colSums) fromBase(base *colSums, w0, K int) {
 	for a := 0; a < w0; a++ {
 		copy(c.cross[a*K:a*K+w0], base.cross[a*w0:(a+1)*w0])
 	}
+}
+
+// nonFinite reports whether the sums of the first pass (columnSums
+// without means) met a non-finite value of X: an infinite one is the
+// largest value of its column, and a NaN makes its column's sum NaN (a
+// zero weight times it too). An overflowing sum alone (infinite, not NaN)
+// does not count, but the sums of two stripes overflowing both ways can
+// give NaN: the caller looks for the value itself.
+func (c *colSums) nonFinite() bool {
+	for k := range c.sum {
+		if math.IsNaN(c.sum[k]) || math.IsInf(c.maxAbs[k], 0) {
+			return true
+		}
+	}
+	return false
 }
 
 // addGroups adds a block's indicator columns (each row's group; first row

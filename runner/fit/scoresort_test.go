@@ -260,3 +260,62 @@ func TestCutByCounts(t *testing.T) {
 		}
 	}
 }
+
+// TestNonFiniteXFoundByRankCheck: a NaN, +Inf or -Inf in X (one row of
+// many, generated and seeded, with and without weights, a zero weight on
+// the row itself too) is refused with the row and predictor named, by Fit,
+// FitGrid and CheckDesign alike (the rank check's first pass finds it, the
+// message is validate's), and never read as a predictor too large to fit;
+// finite values whose sums overflow are not taken for one.
+func TestNonFiniteXFoundByRankCheck(t *testing.T) {
+	rng := rand.New(rand.NewPCG(23, 4))
+	n, K := 50000, 3
+	base := &Data{J: 2, Y: make([]int, n), X: make([]float64, n*K), Predictors: []string{"a", "b", "c"}}
+	for i := 0; i < n; i++ {
+		base.Y[i] = rng.IntN(2)
+		for k := 0; k < K; k++ {
+			base.X[i*K+k] = rng.NormFloat64()
+		}
+	}
+	m := Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(K, Parallel)}
+	for _, v := range []float64{math.NaN(), math.Inf(1), math.Inf(-1)} {
+		for _, weights := range []string{"none", "ones", "zero at the row"} {
+			d := *base
+			d.X = slices.Clone(base.X)
+			row, k := 31234, 1
+			d.X[row*K+k] = v
+			if weights != "none" {
+				d.Weights = make([]float64, n)
+				for i := range d.Weights {
+					d.Weights[i] = 1
+				}
+				if weights == "zero at the row" {
+					d.Weights[row] = 0
+				}
+			}
+			want := fmt.Sprintf("row %d: predictor %q has the non-finite value %g", row+1, "b", v)
+			if err := d.validate(); err == nil || err.Error() != want {
+				t.Fatalf("validate: %v, want %s", err, want)
+			}
+			_, err := Fit(&d, m, Options{})
+			var gridErr error
+			FitGrid(&d, []Model{m}, Options{}, 0, func(_ int, _ *Result, err error) { gridErr = err })
+			for name, err := range map[string]error{"Fit": err, "FitGrid": gridErr, "CheckDesign": CheckDesign(&d)} {
+				if err == nil || err.Error() != want {
+					t.Errorf("%g, weights %s: %s says %v, want %s", v, weights, name, err, want)
+				}
+			}
+		}
+	}
+	// Values near the largest float64, positive in the first half of the
+	// rows, negative in the second: the stripes' sums overflow both ways
+	// (their total NaN), none is non-finite; they are refused as too large.
+	d := *base
+	d.X = slices.Clone(base.X)
+	for i := 0; i < n; i++ {
+		d.X[i*K] = math.Copysign(1.7e308, float64(n/2-i)-0.5)
+	}
+	if err := CheckDesign(&d); err == nil || !strings.Contains(err.Error(), "too large to fit") {
+		t.Errorf("overflowing sums: %v, want the predictor refused as too large", err)
+	}
+}
