@@ -366,7 +366,7 @@ func (p *problem) newScratch() *scratch {
 func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *scratch) {
 	rows := hi - lo
 	p.blockColumns(c, lo, rows, s)
-	p.blockLinear(c, lo, rows, s)
+	p.blockLinear(c, lo, rows, order >= 1, s)
 	var t0 time.Duration
 	if p.prof != nil {
 		t0 = cpuClock()
@@ -424,7 +424,9 @@ func (p *problem) blockColumns(c *coefs, lo, rows int, s *scratch) {
 			}
 		}
 	}
-	gatherRows(s.uf, at, x, w, rows, from, nil, nil)
+	if len(from) > 0 {
+		gatherRows(s.uf, at, x, w, rows, from, nil, nil)
+	}
 	if p.parFromRows() {
 		return
 	}
@@ -438,9 +440,12 @@ func (p *problem) blockColumns(c *coefs, lo, rows int, s *scratch) {
 // eight rows at a time: each row is read once, and a column's values of the
 // eight rows are one contiguous store. With e (rows values) it also forms
 // each row's e_i = sum_j b_j x_i,from[j], the terms added to 0 in the
-// order of from, as axpy over the columns would.
+// order of from, as axpy over the columns would; with dst nil, only those
+// (the columns not copied).
 func gatherRows(dst []float64, at []int, x []float64, w, rows int, from []int, b, e []float64) {
-	at = at[:len(from)]
+	if dst != nil {
+		at = at[:len(from)]
+	}
 	if e != nil {
 		b = b[:len(from)]
 	}
@@ -463,16 +468,17 @@ func gatherRows(dst []float64, at []int, x []float64, w, rows int, from []int, b
 		}
 		var e0, e1, e2, e3, e4, e5, e6, e7 float64
 		for j, k := range from {
-			v := (*[8]float64)(dst[at[j]*rows+i:])
 			bj := b[j]
 			x0, x1, x2, x3 := r0[k], r1[k], r2[k], r3[k]
-			v[0], v[1], v[2], v[3] = x0, x1, x2, x3
+			x4, x5, x6, x7 := r4[k], r5[k], r6[k], r7[k]
+			if dst != nil {
+				v := (*[8]float64)(dst[at[j]*rows+i:])
+				v[0], v[1], v[2], v[3], v[4], v[5], v[6], v[7] = x0, x1, x2, x3, x4, x5, x6, x7
+			}
 			e0 += bj * x0
 			e1 += bj * x1
 			e2 += bj * x2
 			e3 += bj * x3
-			x4, x5, x6, x7 := r4[k], r5[k], r6[k], r7[k]
-			v[4], v[5], v[6], v[7] = x4, x5, x6, x7
 			e4 += bj * x4
 			e5 += bj * x5
 			e6 += bj * x6
@@ -485,7 +491,9 @@ func gatherRows(dst []float64, at []int, x []float64, w, rows int, from []int, b
 		r := x[i*w : (i+1)*w]
 		var ei float64
 		for j, k := range from {
-			dst[at[j]*rows+i] = r[k]
+			if dst != nil {
+				dst[at[j]*rows+i] = r[k]
+			}
 			if e != nil {
 				ei += b[j] * r[k]
 			}
@@ -526,7 +534,8 @@ func (p *problem) column(dst, x []float64, lo, k int) {
 
 // parFromRows reports whether the parallel columns held in the blocks are
 // all predictors of x (no indicator among them): then blockLinear copies
-// them into the block and forms x'b in the same sweep (gatherRows).
+// them into the block and forms x'b in the same sweep (gatherRows), or
+// forms x'b alone when no sum needs them as columns.
 func (p *problem) parFromRows() bool {
 	w := p.d.width()
 	for _, k := range p.parCols[:len(p.parCols)-p.parInd] {
@@ -539,8 +548,10 @@ func (p *problem) parFromRows() bool {
 
 // blockLinear fills s.eta with Uf Bf + (Xp bp + offset) 1', each sum in the
 // order of its terms; when no equation has slopes of its own, the
-// equations share one column (s.etaStride 0).
-func (p *problem) blockLinear(c *coefs, lo, rows int, s *scratch) {
+// equations share one column (s.etaStride 0). held asks for the parallel
+// columns in s.xp (the score's and the information's cross-products);
+// without it, those read from the rows (parFromRows) are not copied.
+func (p *problem) blockLinear(c *coefs, lo, rows int, held bool, s *scratch) {
 	q := p.q
 	// The shared sum goes straight to eta when it is all there is.
 	shared := !slices.ContainsFunc(c.bf, func(b float64) bool { return b != 0 })
@@ -554,7 +565,12 @@ func (p *problem) blockLinear(c *coefs, lo, rows int, s *scratch) {
 		// sweep over the rows, summed in the order of the columns as below.
 		d := p.d
 		w := d.width()
-		gatherRows(s.xp, p.parAt, d.x[lo*w:(lo+rows)*w], w, rows, p.parCols[:kp0], c.bp[:kp0], e)
+		x := d.x[lo*w : (lo+rows)*w]
+		if held {
+			gatherRows(s.xp, p.parAt, x, w, rows, p.parCols[:kp0], c.bp[:kp0], e)
+		} else {
+			gatherRows(nil, nil, x, w, rows, p.parCols[:kp0], c.bp[:kp0], e)
+		}
 	} else {
 		clear(e)
 		for j, b := range c.bp[:kp0] {
@@ -824,10 +840,14 @@ func (p *problem) blockInformation(lo, rows int, a *acc, s *scratch) {
 // terms the cross-products of blockInformation would form with the
 // indicators held as columns, in the same order (an indicator is 1 in its
 // group, where its product is the other factor exactly, and 0 elsewhere,
-// where it adds 0), so the sums are the same to the last bit.
+// where it adds 0), so the sums are the same to the last bit. The other
+// parallel columns (predictors of x: parFromRows holds with indicators
+// summed by group) are read from the rows, whether copied or not.
 func (p *problem) indicatorInformation(lo, rows, kp0 int, ru []float64, a *acc, s *scratch) {
 	q, kf, kp := p.q, len(p.freeCols), len(p.parCols)
 	wt := s.wt[:rows]
+	w := p.d.width()
+	x, cols := p.d.x[lo*w:(lo+rows)*w], p.parCols[:kp0]
 	for i, g := range p.d.group[lo : lo+rows] {
 		if g == 0 {
 			continue
@@ -838,8 +858,9 @@ func (p *problem) indicatorInformation(lo, rows, kp0 int, ru []float64, a *acc, 
 			r[c] += ru[c*rows+i]
 		}
 		t := a.T[j*kp : j*kp+j+1]
-		for b := 0; b < kp0; b++ {
-			t[b] += wt[i] * s.xp[b*rows+i]
+		xi := x[i*w : (i+1)*w]
+		for b, k := range cols {
+			t[b] += wt[i] * xi[k]
 		}
 		t[j] += wt[i]
 	}

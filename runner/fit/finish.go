@@ -302,7 +302,7 @@ func (p *problem) fittedRows(theta []float64, withMin bool) (float64, int) {
 		defer p.scratch.Put(s)
 		rows := hi - lo
 		p.blockColumns(c, lo, rows, s)
-		p.blockLinear(c, lo, rows, s)
+		p.blockLinear(c, lo, rows, false, s)
 		L := make([]float64, q)
 		pr := make([]float64, q+1)
 		minLP, minP := math.Inf(1), math.Inf(1)

@@ -8,8 +8,9 @@ import (
 
 // TestGatherRows checks gatherRows against a plain loop over the rows: the
 // columns copied to their places, and x'b formed as axpy over the columns
-// forms it (to the last bit without fused multiply-adds), for blocks that
-// are and are not a multiple of its eight rows.
+// forms it (to the last bit without fused multiply-adds), the same bits
+// when only x'b is formed (no destination), for blocks that are and are
+// not a multiple of its eight rows.
 func TestGatherRows(t *testing.T) {
 	rng := rand.New(rand.NewPCG(7, 8))
 	const w = 5
@@ -22,6 +23,13 @@ func TestGatherRows(t *testing.T) {
 		gatherRows(dst, at, x, w, rows, from, b, e)
 		plain := make([]float64, 3*rows)
 		gatherRows(plain, at, x, w, rows, from, nil, nil)
+		alone := make([]float64, rows) // x'b without copying
+		gatherRows(nil, nil, x, w, rows, from, b, alone)
+		for i := range alone {
+			if math.Float64bits(alone[i]) != math.Float64bits(e[i]) {
+				t.Fatalf("rows=%d: row %d x'b without the copy %g, with it %g", rows, i, alone[i], e[i])
+			}
+		}
 		for i := 0; i < rows; i++ {
 			want, abs := 0.0, 0.0
 			for j, k := range from {

@@ -120,7 +120,7 @@ func (t *ScoreGroups) count(d *Data, i, g int, score, probs []float64) {
 	if wi == 0 {
 		return
 	}
-	t.Low[g], t.High[g] = math.Min(t.Low[g], score[i]), math.Max(t.High[g], score[i])
+	t.Low[g], t.High[g] = min(t.Low[g], score[i]), max(t.High[g], score[i])
 	t.Weight[g] += wi
 	t.Observed[g][d.Y[i]] += wi
 	for j := 0; j < J; j++ {

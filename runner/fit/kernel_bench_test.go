@@ -37,7 +37,7 @@ func BenchmarkBlockKernels(b *testing.B) {
 		c := p.coefs(theta)
 		s := p.newScratch()
 		p.blockColumns(c, 0, blockRows, s)
-		p.blockLinear(c, 0, blockRows, s)
+		p.blockLinear(c, 0, blockRows, true, s)
 		b.Run(tc.name, func(b *testing.B) {
 			cpu0 := processCPU()
 			for i := 0; i < b.N; i++ {

@@ -57,7 +57,7 @@ func TestBlockKernelsAsGeneral(t *testing.T) {
 			for order := 0; order <= 2; order++ {
 				s := p.newScratch()
 				p.blockColumns(c, 0, n, s)
-				p.blockLinear(c, 0, n, s)
+				p.blockLinear(c, 0, n, order >= 1, s)
 				a := p.newAcc(0)
 				if !p.blockKernels(c, 0, n, order, false, a, s) {
 					t.Fatalf("%s J=%d: kernel failed", tc.name, J)

@@ -185,8 +185,9 @@ type EtaSpread struct {
 // Add gathers the rows of d (their weights, offset) at the equation-1
 // slopes of r, by West's weighted update of the mean and sum of squares.
 func (s *EtaSpread) Add(d *Data, r *Result) {
-	K := len(r.Predictors)
-	for i := 0; i < d.N(); i++ {
+	K, n := len(r.Predictors), d.N()
+	b, x := r.Effects[0][:K], d.X[:n*K]
+	for i := 0; i < n; i++ {
 		w := 1.0
 		if d.Weights != nil {
 			w = d.Weights[i]
@@ -195,8 +196,8 @@ func (s *EtaSpread) Add(d *Data, r *Result) {
 			continue
 		}
 		eta := 0.0
-		for k := 0; k < K; k++ {
-			eta += d.X[i*K+k] * r.Effects[0][k]
+		for k, v := range x[i*K : (i+1)*K] {
+			eta += v * b[k]
 		}
 		if d.Offset != nil {
 			eta += d.Offset[i]

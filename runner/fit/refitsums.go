@@ -155,7 +155,7 @@ func (p *problem) extendSums(theta []float64, expected bool, b *acc) *acc {
 func (p *problem) indicatorBlock(c *coefs, lo, hi int, expected bool, a *acc, s *scratch) {
 	rows := hi - lo
 	p.blockColumns(c, lo, rows, s)
-	p.blockLinear(c, lo, rows, s)
+	p.blockLinear(c, lo, rows, false, s)
 	if !p.blockKernels(c, lo, rows, 2, expected, a, s) {
 		a.bad = true
 		return
