@@ -394,11 +394,12 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 	p.blockInformation(lo, rows, a, s)
 }
 
-// blockColumns fills s.uf with the per-equation columns (Kf x rows) and
-// s.xp with the parallel columns (Kp x rows) of the block; the predictors
-// of x are copied in one sweep over the rows (gatherRows). The parallel
-// columns are left to blockLinear when it reads them from the rows
-// (parFromRows).
+// blockColumns fills s.uf with the per-equation columns (Kf x rows; the
+// constant only when it is not the only one, since alone its sums are the
+// weights' column sums) and s.xp with the parallel columns (Kp x rows) of
+// the block; the predictors of x are copied in one sweep over the rows
+// (gatherRows). The parallel columns are left to blockLinear when it reads
+// them from the rows (parFromRows).
 func (p *problem) blockColumns(c *coefs, lo, rows int, s *scratch) {
 	d := p.d
 	w := d.width()
@@ -408,8 +409,12 @@ func (p *problem) blockColumns(c *coefs, lo, rows int, s *scratch) {
 		dst := s.uf[j*rows : (j+1)*rows]
 		switch col.kind {
 		case constantColumn:
-			for i := range dst {
-				dst[i] = 1
+			// Read only by the cross-products of several per-equation
+			// columns: the constant's own sums are column sums.
+			if len(p.freeCols) > 1 {
+				for i := range dst {
+					dst[i] = 1
+				}
 			}
 		case predictorColumn:
 			if col.index < w {
@@ -770,7 +775,7 @@ func (p *problem) blockScore(lo, rows int, a *acc, s *scratch) {
 	kf, kp := len(p.freeCols), len(p.parCols)
 	if kf == 1 {
 		// The constant alone: V is the sum of each equation's column.
-		columnSums(a.V, s.gs, rows)
+		sumColumns(a.V, s.gs, rows)
 	} else {
 		fullCross(a.V, kf, s.gs, q, s.uf, kf, rows, nil)
 	}

@@ -126,35 +126,39 @@ func (p *problem) pairSums(rows int, a *acc, s *scratch) {
 	for pi := range sums {
 		sums[pi] = a.S[pi][0]
 	}
-	columnSums(sums, s.hp, rows)
+	sumColumns(sums, s.hp, rows)
 	for pi, v := range sums {
 		a.S[pi][0] = v
 	}
 }
 
-// columnSums adds to dst[j] the sum over the n rows of column j of u
+// sumColumns adds to dst[j] the sum over the n rows of column j of u
 // (column-major, len(dst) columns of n rows), each one running sum over
 // the rows in order, as a cross-product with a column of ones forms it
-// (1 x = x exactly), four columns in one sweep over the rows so that the
-// sums' additions overlap.
-func columnSums(dst, u []float64, n int) {
+// (x 1 = x exactly): four columns in one sweep over the rows, so that four
+// sums' additions overlap, the last sweep filled up with the last column
+// again (its extra sums dropped).
+func sumColumns(dst, u []float64, n int) {
 	k := len(dst)
+	at := func(c int) int { return min(c, k-1) }
+	col := func(c int) []float64 { c = at(c); return u[c*n : (c+1)*n] }
 	for j := 0; j < k; j += 4 {
-		// The columns past the last are the last again, their sums dropped.
-		col := func(c int) []float64 { c = min(c, k-1); return u[c*n : (c+1)*n] }
-		c0, c1, c2, c3 := col(j), col(j+1), col(j+2), col(j+3)
-		s0, s1, s2, s3 := dst[j], dst[min(j+1, k-1)], dst[min(j+2, k-1)], dst[min(j+3, k-1)]
-		for i, v := range c0 {
-			s0 += v
-			s1 += c1[i]
-			s2 += c2[i]
-			s3 += c3[i]
-		}
-		dst[j] = s0
-		for c, v := range [3]float64{s1, s2, s3} {
-			if j+1+c < k {
-				dst[j+1+c] = v
-			}
-		}
+		s := [4]float64{dst[j], dst[at(j+1)], dst[at(j+2)], dst[at(j+3)]}
+		sum4(&s, col(j), col(j+1), col(j+2), col(j+3))
+		copy(dst[j:], s[:min(4, k-j)])
 	}
+}
+
+// sum4 adds to s the sums over rows of four columns, row after row.
+func sum4(s *[4]float64, a0, a1, a2, a3 []float64) {
+	n := len(a0)
+	a1, a2, a3 = a1[:n], a2[:n], a3[:n]
+	s0, s1, s2, s3 := s[0], s[1], s[2], s[3]
+	for i, v := range a0 {
+		s0 += v
+		s1 += a1[i]
+		s2 += a2[i]
+		s3 += a3[i]
+	}
+	*s = [4]float64{s0, s1, s2, s3}
 }
