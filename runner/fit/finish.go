@@ -49,7 +49,11 @@ type source struct {
 // localSource is the source of a fit of the rows of d, evaluated by pr;
 // sd is the predictors' standard deviations (nil: computed here).
 func localSource(d *Data, pr *problem, sd []float64) *source {
-	if sd == nil {
+	switch {
+	case sd != nil:
+	case len(d.Predictors) == 0:
+		sd = []float64{} // no pass over the rows for no predictor
+	default:
 		sd = predictorSD(d)
 	}
 	return &source{

@@ -120,11 +120,13 @@ func (t *ScoreGroups) count(d *Data, i, g int, score, probs []float64) {
 	if wi == 0 {
 		return
 	}
-	t.Low[g], t.High[g] = min(t.Low[g], score[i]), max(t.High[g], score[i])
+	s := score[i]
+	t.Low[g], t.High[g] = min(t.Low[g], s), max(t.High[g], s)
 	t.Weight[g] += wi
 	t.Observed[g][d.Y[i]] += wi
-	for j := 0; j < J; j++ {
-		t.Expected[g][j] += wi * probs[i*J+j]
+	e := t.Expected[g][:J]
+	for j, v := range probs[i*J : (i+1)*J] {
+		e[j] += wi * v
 	}
 }
 

@@ -341,21 +341,23 @@ func (c *colSums) addGroups(group []int, lo int, w []float64, w0 int) {
 // every row. Each sum takes the rows in order, as a column-major loop would.
 func (c *colSums) addGroupCross(group []int, x, mean, w []float64, w0 int) {
 	s := make([]float64, w0)
+	mean = mean[:w0]
+	v := make([]float64, w0) // a row's weighted values less the means
 	for i, g := range group {
 		row := x[i*w0 : (i+1)*w0]
-		var grp []float64
-		if g > 0 {
-			grp = c.grp[(g-1)*w0 : g*w0]
+		if w == nil {
+			for b, xb := range row {
+				v[b] = xb - mean[b]
+			}
+		} else {
+			wi := w[i]
+			for b, xb := range row {
+				v[b] = (xb - mean[b]) * wi
+			}
 		}
-		for b, v := range row {
-			v -= mean[b]
-			if w != nil {
-				v *= w[i]
-			}
-			s[b] += v
-			if grp != nil {
-				grp[b] += v
-			}
+		addTo(s, v)
+		if g > 0 {
+			addTo(c.grp[(g-1)*w0:g*w0], v)
 		}
 	}
 	addTo(c.all, s)
@@ -399,12 +401,15 @@ func (c *colSums) addSums(x []float64, rows, lo int, w []float64) {
 	mx, at := c.maxAbs[:w0], c.at[:w0]
 	for i := 0; i < rows; i++ {
 		row := x[i*w0 : (i+1)*w0]
-		for k, v := range row {
-			if w == nil {
-				s[k] += v
-			} else {
-				s[k] += w[i] * v
+		if w == nil {
+			addTo(s, row)
+		} else {
+			wi := w[i]
+			for k, v := range row {
+				s[k] += wi * v
 			}
+		}
+		for k, v := range row {
 			if a := math.Abs(v); a > mx[k] {
 				mx[k], at[k] = a, lo+i
 			}
