@@ -125,8 +125,8 @@ func (k *kernel) cumulative(L []float64, c int, g, h []float64) (float64, bool) 
 		g[c-1] = -m.ra
 	}
 	if h != nil {
-		h[c*q+c] = m.hbb()
-		h[(c-1)*q+c-1] = m.haa()
+		h[c*q+c] = m.hbb
+		h[(c-1)*q+c-1] = m.haa
 		h[c*q+c-1] = m.ra * m.rb
 		h[(c-1)*q+c] = m.ra * m.rb
 	}
@@ -136,12 +136,16 @@ func (k *kernel) cumulative(L []float64, c int, g, h []float64) (float64, bool) 
 // middle is log P of a middle category of a cumulative model, P =
 // F(b) - F(a) with b > a the category's upper and lower boundaries, and
 // what its derivatives take: ra = f(a)/P, rb = f(b)/P (d log P/db = rb,
-// d log P/da = -ra) and qa, qb = f'/f at a and b.
-type middle struct{ lp, ra, rb, qa, qb float64 }
+// d log P/da = -ra, d2 log P/da db = ra rb), hbb = d2 log P/db2 and
+// haa = d2 log P/da2.
+type middle struct{ lp, ra, rb, haa, hbb float64 }
 
-// hbb is d2 log P / db2, haa d2 log P / da2; d2 log P / da db is ra rb.
-func (m middle) hbb() float64 { return m.qb*m.rb - m.rb*m.rb }
-func (m middle) haa() float64 { return -m.qa*m.ra - m.ra*m.ra }
+// setSecond sets the second derivatives from qa, qb = f'/f at a and b:
+// hbb = qb rb - rb^2, haa = -qa ra - ra^2.
+func (m *middle) setSecond(qa, qb float64) {
+	m.hbb = qb*m.rb - m.rb*m.rb
+	m.haa = -qa*m.ra - m.ra*m.ra
+}
 
 // between evaluates the middle category between boundaries a < b (with
 // what the derivatives take when derivs is set); ok is false when b <= a
@@ -151,22 +155,10 @@ func (k *kernel) between(a, b float64, derivs bool) (m middle, ok bool) {
 		return middle{lp: math.Inf(-1)}, false
 	}
 	if k.link == Logit {
-		// Two exponentials and one logarithm serve the probability and both
-		// densities (logitBetween), the log-space path below only far in
-		// the tails.
-		pa, pb := newLogitPoint(a), newLogitPoint(b)
-		m.qa, m.qb = pa.Fc-pa.F, pb.Fc-pb.F
-		if m.lp, m.ra, m.rb, ok = logitBetween(pa, pb); ok {
-			return m, true
-		}
-		m.lp = logitDiff(pa, pb)
-		if math.IsInf(m.lp, -1) || math.IsNaN(m.lp) {
-			return m, false
-		}
-		lfa, _ := pa.logDensity()
-		lfb, _ := pb.logDensity()
-		m.rb, m.ra = math.Exp(lfb-m.lp), math.Exp(lfa-m.lp)
-		return m, true
+		// Two exponentials and one logarithm serve the probability and its
+		// derivatives (logitMiddle), the log-space path only far in the
+		// tails.
+		return logitMiddle(newLogitPoint(a), newLogitPoint(b))
 	}
 	m.lp = logDiffCDF(k.link, a, b)
 	if math.IsInf(m.lp, -1) || math.IsNaN(m.lp) {
@@ -175,10 +167,10 @@ func (k *kernel) between(a, b float64, derivs bool) (m middle, ok bool) {
 	if !derivs {
 		return m, true
 	}
-	var lfa, lfb float64
-	lfb, m.qb = k.link.logDensity(b)
-	lfa, m.qa = k.link.logDensity(a)
+	lfb, qb := k.link.logDensity(b)
+	lfa, qa := k.link.logDensity(a)
 	m.rb, m.ra = math.Exp(lfb-m.lp), math.Exp(lfa-m.lp)
+	m.setSecond(qa, qb)
 	return m, true
 }
 

@@ -337,6 +337,8 @@ type scratch struct {
 	L, g, h   []float64
 	p         []float64
 	sums      []float64 // pairs: the constant's information pieces of a block (pairSums)
+	kt        []float64 // the logit kernels' per-row values between their sweeps (kernelTemp)
+	ki        []int     // the logit kernels' lists of rows (kernelTemp)
 }
 
 func (p *problem) newScratch() *scratch {
@@ -628,8 +630,11 @@ func axpy(y []float64, b float64, x []float64) {
 func (p *problem) blockKernels(c *coefs, lo, rows, order int, expected bool, a *acc, s *scratch) bool {
 	d, q := p.d, p.q
 	if p.ker.cmp == Cumulative && !expected {
-		if q == 1 && p.ker.link == Logit {
-			return p.binaryKernels(c, lo, rows, order, a, s)
+		if p.ker.link == Logit {
+			if q == 1 {
+				return p.binaryKernels(c, lo, rows, order, a, s)
+			}
+			return p.cumulativeLogitKernels(c, lo, rows, order, a, s)
 		}
 		return p.cumulativeKernels(c, lo, rows, order, a, s)
 	}
@@ -760,8 +765,8 @@ func (p *problem) cumulativeKernels(c *coefs, lo, rows, order int, a *acc, s *sc
 			gs[(yi-1)*rows+i] = wi * -md.ra
 		}
 		if order >= 2 {
-			hcol(yi, yi)[i] = wi * md.hbb()
-			hcol(yi-1, yi-1)[i] = wi * md.haa()
+			hcol(yi, yi)[i] = wi * md.hbb
+			hcol(yi-1, yi-1)[i] = wi * md.haa
 			hcol(yi-1, yi)[i] = wi * (md.ra * md.rb)
 		}
 	}

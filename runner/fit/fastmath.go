@@ -30,7 +30,9 @@ import (
 // as the result nears 0.
 //
 // log1p: u = 1 + x rounded and d = 1 + x - u exactly; log1p(x) = log(u) +
-// d/u to well below an ulp; below 2^-7 the Taylor polynomial of x itself.
+// d/u to well below an ulp; within 2^-7 of 0 the Taylor polynomial of x
+// itself. Negative x down to -1/2 take the same path (the row kernels'
+// log P = log1p(-u) of probabilities near 1).
 
 const (
 	expTableBits = 7
@@ -187,6 +189,31 @@ func fastExp(x float64) float64 {
 	return v
 }
 
+// expNegAbsTo sets dst[i] = fastExp(-|src[i]|), bit for bit, with
+// fastExp's body in the loop (no call per value, so that the values'
+// latencies overlap and nothing is saved around calls): the logit
+// kernels' e^-|z| of a block's rows. dst has at least len(src) values.
+func expNegAbsTo(dst, src []float64) {
+	dst = dst[:len(src)]
+	for i, z := range src {
+		x := -math.Abs(z)
+		if !(x >= -expSmall) {
+			// below -700 (the scaled path), NaN: fastExp itself
+			dst[i] = fastExp(x)
+			continue
+		}
+		kd := x*(expN/math.Ln2) + expShift
+		ki := math.Float64bits(kd)
+		kd -= expShift
+		r := x - kd*(ln2Hi/expN) - kd*(ln2Lo/expN)
+		t := &expTable[ki&(expN-1)]
+		scale := math.Float64frombits(math.Float64bits(t.hi) + (ki>>expTableBits)<<52)
+		r2 := r * r
+		p := t.tail + r + r2*(1.0/2+r*(1.0/6)) + r2*r2*(1.0/24+r*(1.0/120))
+		dst[i] = scale + scale*p
+	}
+}
+
 // fastLog is log x within 0.71 ulp (math.Log for x <= 0, subnormal x,
 // infinities and NaN).
 func fastLog(x float64) float64 {
@@ -200,17 +227,18 @@ func fastLog(x float64) float64 {
 	return logTable64(ix, 0)
 }
 
-// fastLog1p is log(1 + x) within 0.85 ulp for x >= 0 (math.Log1p for
-// negative x, x of 2^1000 or more, infinities and NaN).
+// fastLog1p is log(1 + x) within 0.85 ulp for x >= -1/2 (math.Log1p
+// below, for x of 2^1000 or more, infinities and NaN).
 func fastLog1p(x float64) float64 {
-	if !(x >= 0 && x < 0x1p1000) {
+	if !(x >= -0.5 && x < 0x1p1000) {
 		return math.Log1p(x)
 	}
-	if x < logNear {
+	if x < logNear && x > -logNear {
 		return log1pSmall(x)
 	}
 	u := 1 + x
-	// 1 + x = u + d exactly (the larger of 1 and x first).
+	// 1 + x = u + d exactly (the larger of 1 and |x| first; from -1/2 on
+	// 1 + x is at least 2^-7 away from 1 and at least 1/2).
 	d := min(x, 1) - (u - max(x, 1))
 	return logTable64(math.Float64bits(u), d/u)
 }

@@ -194,9 +194,12 @@ func fastCases() []fastCase {
 				"2^[-60, 8]":                 func(r *rand.Rand) float64 { return logUniform(r, -60, 8) },
 				"2^-7 (1 ± 2^-20)":           func(r *rand.Rand) float64 { return 0x1p-7 * (1 + (r.Float64()-0.5)*0x1p-19) },
 				"sums of tails t in [0, 31]": func(r *rand.Rand) float64 { return 31 * r.Float64() },
+				"uniform [-1/2, 0]":          func(r *rand.Rand) float64 { return -0.5 * r.Float64() },
+				"-2^[-60, -1]":               func(r *rand.Rand) float64 { return -logUniform(r, -60, -1) },
+				"-2^-7 (1 ± 2^-20)":          func(r *rand.Rand) float64 { return -0x1p-7 * (1 + (r.Float64()-0.5)*0x1p-19) },
 			},
-			special: []float64{math.NaN(), math.Inf(1), math.Inf(-1), -1, -2, -0.5, -1e-300, math.Copysign(0, -1), 0x1p1000, math.MaxFloat64},
-			edges:   []float64{0, 5e-324, 1e-310, 0x1p-1022, 1e-300, 0x1p-53, 0x1p-7, 0x1p-7 - 0x1p-60, 0x1p-7 + 0x1p-59, 1, 1 - 0x1p-53, 1 + 0x1p-52, 2, 0x1p52, 0x1p53, 0x1p53 + 2, 0x1p1000 * (1 - 0x1p-53), 1e10, 0.5, 0.375, 0.375 - 0x1p-54},
+			special: []float64{math.NaN(), math.Inf(1), math.Inf(-1), -1, -2, -0.5 - 0x1p-53, -0.75, math.Copysign(0, -1), 0x1p1000, math.MaxFloat64},
+			edges:   []float64{0, 5e-324, 1e-310, 0x1p-1022, 1e-300, 0x1p-53, 0x1p-7, 0x1p-7 - 0x1p-60, 0x1p-7 + 0x1p-59, 1, 1 - 0x1p-53, 1 + 0x1p-52, 2, 0x1p52, 0x1p53, 0x1p53 + 2, 0x1p1000 * (1 - 0x1p-53), 1e10, 0.5, 0.375, 0.375 - 0x1p-54, -0.5, -0.5 + 0x1p-54, -1e-300, -5e-324, -0x1p-7, -0x1p-7 + 0x1p-60, -0x1p-7 - 0x1p-59, -0.25, -0.3125, -0.3125 - 0x1p-54, -0x1p-53, -0x1p-8},
 			maxULP:  1,
 		},
 	}
@@ -300,5 +303,33 @@ func TestFastMathReference(t *testing.T) {
 		ec := refExp(e.logc)
 		ec.Mul(ec, new(big.Float).SetPrec(ulpPrec).Add(big.NewFloat(1), bigF(e.logcLo)))
 		near("logTable["+strconv.Itoa(i)+"] log c", ec, bigF(e.c))
+	}
+}
+
+// TestExpNegAbsTo checks the loop form of fastExp (expNegAbsTo) against
+// fastExp itself, bit for bit, on seeded arguments of every range it
+// meets (the kernels' z, the far tails, the scaled path below -700,
+// infinities and NaN).
+func TestExpNegAbsTo(t *testing.T) {
+	r := rand.New(rand.NewPCG(23, 5))
+	src := []float64{0, math.Copysign(0, -1), 700, -700, 700.0000001, 708, 709, 745, 746, 1e300, math.Inf(1), math.Inf(-1), math.NaN(), 5e-324}
+	for i := 0; i < 200000; i++ {
+		switch i % 4 {
+		case 0:
+			src = append(src, 4*r.NormFloat64())
+		case 1:
+			src = append(src, -800+1600*r.Float64())
+		case 2:
+			src = append(src, math.Copysign(logUniform(r, -60, 10), r.Float64()-0.5))
+		default:
+			src = append(src, 699+2*r.Float64())
+		}
+	}
+	dst := make([]float64, len(src))
+	expNegAbsTo(dst, src)
+	for i, z := range src {
+		if want := fastExp(-math.Abs(z)); math.Float64bits(dst[i]) != math.Float64bits(want) && !(math.IsNaN(want) && math.IsNaN(dst[i])) {
+			t.Fatalf("expNegAbsTo(%v) = %v, fastExp %v", z, dst[i], want)
+		}
 	}
 }

@@ -7,8 +7,8 @@ import (
 )
 
 // TestBlockKernelsAsGeneral checks the block kernels written straight into
-// the block's columns (cumulativeKernels, binaryKernels, tailKernels,
-// adjacentKernels) against the general kernel (kernel.eval, row by row,
+// the block's columns (cumulativeKernels, cumulativeLogitKernels,
+// binaryKernels, tailKernels, adjacentKernels) against the general kernel (kernel.eval, row by row,
 // weighted as blockKernels weights it): the same log-likelihood, smallest
 // log-probability, first and second derivatives, bit for bit, with
 // weights of 0, fractions and whole numbers, per-equation and parallel

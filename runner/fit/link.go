@@ -47,23 +47,26 @@ func (l Link) lower(z float64) tail {
 		p := newLogitPoint(z)
 		return tail{p.logF(), p.Fc, -p.F * p.Fc}
 	case Probit:
-		v := logPhi(z)
-		lam := millsInv(z) // phi(z)/Phi(z)
+		// log Phi and phi/Phi from one erfc (logPhi and millsInv, shared).
+		v, lam := logPhiMills(z)
 		return tail{v, lam, -lam * (z + lam)}
 	case Cloglog:
-		// F = 1-exp(-e^z). log F = log(-expm1(-u)), u = e^z.
+		// F = 1-exp(-e^z). log F = log(-expm1(-u)), u = e^z: one expm1
+		// for F and one for e^u - 1, each shared by the value and the
+		// derivatives.
 		u := math.Exp(z)
 		if u == 0 {
 			// F ~ u: log F ~ z, derivatives 1 and 0
 			return tail{z, 1, 0}
 		}
-		v := math.Log(-math.Expm1(-u))
-		a := u / math.Expm1(u) // d log F / dz
-		if math.IsInf(math.Expm1(u), 1) {
+		F, eu := -math.Expm1(-u), math.Expm1(u)
+		v := math.Log(F)
+		a := u / eu // d log F / dz
+		if math.IsInf(eu, 1) {
 			a = 0
 		}
 		// d a/dz = a - u*a*e^u/(e^u-1) = a*(1 - u/(1-e^-u))
-		d2 := a * (1 - u/(-math.Expm1(-u)))
+		d2 := a * (1 - u/F)
 		if a == 0 {
 			d2 = 0
 		}
@@ -166,14 +169,25 @@ type logitPoint struct{ z, e, F, Fc float64 }
 
 func newLogitPoint(z float64) logitPoint { return logitPointOf(z, fastExp(-math.Abs(z))) }
 
-// logitPointOf is newLogitPoint with e = exp(-|z|) at hand.
+// logitPointOf is newLogitPoint with e = exp(-|z|) at hand: 1/(1 + e)
+// and e/(1 + e), swapped below 0 without a branch (the signs of the rows'
+// z follow no pattern a branch predictor could learn).
 func logitPointOf(z, e float64) logitPoint {
-	p := logitPoint{z: z, e: e, F: 1 / (1 + e)}
-	p.Fc = e * p.F
-	if z < 0 {
-		p.F, p.Fc = p.Fc, p.F
+	a := 1 / (1 + e)
+	b := e * a
+	neg := z < 0
+	return logitPoint{z: z, e: e, F: pick(neg, b, a), Fc: pick(neg, a, b)}
+}
+
+// pick is x when c holds, else y, without a branch (a conditional move of
+// the bits).
+func pick(c bool, x, y float64) float64 {
+	var m uint64
+	if c {
+		m = ^uint64(0)
 	}
-	return p
+	bx, by := math.Float64bits(x), math.Float64bits(y)
+	return math.Float64frombits(by ^ (bx^by)&m)
 }
 
 // logF is log F(z) = -log(1 + e^-z) = -max(-z, 0) - log1p(e^-|z|).
@@ -209,40 +223,71 @@ func (s *logitTails) add(p logitPoint, upper bool) {
 // sum is the sum of the log-tails added.
 func (s *logitTails) sum() float64 { return -s.shift - fastLog1p(s.t) }
 
-// logitBetween returns, for a < b under the logit link, log P with
-// P = F(b) - F(a), and f(a)/P and f(b)/P (f = F'), from the two points'
-// exponentials, one logarithm and no further exponential but for b - a
-// below 1/2: P = F(b) (1 - F(a)) (1 - e^(a-b)), each factor without
-// cancellation, f(a)/P = F(a) / (F(b) (1 - e^(a-b))) and
-// f(b)/P = (1 - F(b)) / ((1 - F(a)) (1 - e^(a-b))). When P is near the
+// logitMiddle returns, for a < b under the logit link, the middle
+// category P = F(b) - F(a) of a cumulative model from the two points'
+// exponentials (one each) and one logarithm, and what its derivatives take,
+// with no further exponential but for b - a below 1/2. P = F(b) (1 - F(a))
+// D with D = 1 - E, E = e^(a-b) (D from expm1 when b - a < 1/2, E then
+// 1 - D; else E from the points' exponentials), each factor without
+// cancellation. With t = (1 + e^-|a|)(1 + e^-|b|) - 1 formed from positive
+// terms, F(b) (1 - F(a)) = e^-s / (1 + t), s = max(-b, 0) + max(a, 0), so
+// log P = -s + log(D / (1 + t)) = -s + log1p(-u), u = (t + E) / (1 + t):
+// log1p of -u while u <= 1/2 (P near 1 keeps the digits of its log),
+// the logarithm of D / (1 + t) above. The derivatives: f(a)/P = F(a) /
+// (F(b) D), f(b)/P = (1 - F(b)) / ((1 - F(a)) D) and the second ones
+// d2 log P/db2 = -rb (F(b) + rb (F(a) + (1 - F(a)) E)) and d2 log P/da2 =
+// -ra (1 - F(a) + ra (1 - F(b) + F(b) E)), sums of terms of one sign (the
+// forms f'/f rb - rb^2 lose digits when F(b) is small). When P is near the
 // smallest normal number (one point far in a tail), the log-space path
-// takes over (ok false: the caller uses logitDiff and the densities).
-func logitBetween(pa, pb logitPoint) (lp, ra, rb float64, ok bool) {
-	var D float64 // 1 - e^(a-b)
+// takes over (logitFarMiddle).
+func logitMiddle(pa, pb logitPoint) (m middle, ok bool) {
+	var D, E float64
 	if d := pb.z - pa.z; d < 0.5 {
 		D = -math.Expm1(-d)
+		E = 1 - D
 	} else {
-		var E float64
-		switch {
-		case pa.z >= 0: // e = e^-a, e^-b
-			E = pb.e / pa.e
-		case pb.z < 0: // e = e^a, e^b
-			E = pa.e / pb.e
-		default: // e^a, e^-b
-			E = pa.e * pb.e
-		}
+		// a >= 0: e = e^-a, e^-b; b < 0: e^a, e^b; else e^a, e^-b.
+		// E = na mb / (ma nb) with n = e below 0 (else 1), m = e from 0
+		// on (else 1): one division and no branch whatever the signs.
+		an, bn := pa.z < 0, pb.z < 0
+		E = pick(an, pa.e, 1) * pick(bn, 1, pb.e) / (pick(an, 1, pa.e) * pick(bn, pb.e, 1))
 		D = 1 - E
 	}
-	P := pb.F * pa.Fc * D
-	if !(P >= 0x1p-1000) {
-		return 0, 0, 0, false
+	if !(pb.F*pa.Fc*D >= 0x1p-1000) {
+		return logitFarMiddle(pa, pb)
 	}
-	return fastLog(P), pa.F / (pb.F * D), pb.Fc / (pa.Fc * D), true
+	t := pa.e + pb.e + pa.e*pb.e
+	s := max(-pb.z, 0) + max(pa.z, 0)
+	if u := (t + E) / (1 + t); u <= 0.5 {
+		m.lp = fastLog1p(-u) - s
+	} else {
+		m.lp = fastLog(D/(1+t)) - s
+	}
+	m.ra = pa.F / (pb.F * D)
+	m.rb = pb.Fc / (pa.Fc * D)
+	m.hbb = -m.rb * (pb.F + m.rb*(pa.F+pa.Fc*E))
+	m.haa = -m.ra * (pa.Fc + m.ra*(pb.Fc+pb.F*E))
+	return m, true
+}
+
+// logitFarMiddle is logitMiddle far in the tails: log P in log space
+// (logitDiff), f/P from the log-densities, the second derivatives from
+// f'/f = 1 - 2F. ok is false when log P is not finite.
+func logitFarMiddle(pa, pb logitPoint) (m middle, ok bool) {
+	m.lp = logitDiff(pa, pb)
+	if math.IsInf(m.lp, -1) || math.IsNaN(m.lp) {
+		return m, false
+	}
+	lfa, qa := pa.logDensity()
+	lfb, qb := pb.logDensity()
+	m.rb, m.ra = math.Exp(lfb-m.lp), math.Exp(lfa-m.lp)
+	m.setSecond(qa, qb)
+	return m, true
 }
 
 // logitDiff is log(F(b) - F(a)) for b > a under the logit link, from
 // whichever tail keeps the digits, in log space: logDiffCDF from the two
-// points (the path of logitBetween's far tails).
+// points (the path of logitMiddle's far tails).
 func logitDiff(pa, pb logitPoint) float64 {
 	mid := 0.5 * (pa.z + pb.z)
 	if mid <= 0 || (mid < 1e-15 && Logit.cdf(mid) <= 0.5) { // F(mid) <= 1/2
@@ -273,6 +318,20 @@ func logPhi(z float64) float64 {
 	}
 	// Phi(z) = phi(z) * R(-z), R the Mills ratio.
 	return -0.5*z*z - 0.5*math.Log(2*math.Pi) + math.Log(millsRatio(-z))
+}
+
+// logHalfTwoPi is log(2 pi)/2, the normal density's constant.
+var logHalfTwoPi = 0.5 * math.Log(2*math.Pi)
+
+// logPhiMills is logPhi(z) and millsInv(z), the same values, from one
+// erfc (or one continued fraction far in the lower tail).
+func logPhiMills(z float64) (float64, float64) {
+	if z > -30 {
+		P := 0.5 * math.Erfc(-z/math.Sqrt2)
+		return math.Log(P), math.Exp(-0.5*z*z-logHalfTwoPi) / P
+	}
+	r := millsRatio(-z)
+	return -0.5*z*z - logHalfTwoPi + math.Log(r), 1 / r
 }
 
 // millsInv is phi(z)/Phi(z).

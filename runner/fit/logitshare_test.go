@@ -2,6 +2,7 @@ package fit
 
 import (
 	"math"
+	"math/big"
 	"testing"
 )
 
@@ -79,52 +80,122 @@ func TestLogitPointAccuracy(t *testing.T) {
 	}
 }
 
-// TestLogitBetween checks the probability of a middle category from the
-// two points' exponentials (logitBetween) against the log-space path
-// (logitDiff, from whichever tail keeps the digits) and its derivatives
-// f(a)/P, f(b)/P against exp(log f - log P), over pairs of the grid, and
-// that the far tails are left to the log-space path.
-func TestLogitBetween(t *testing.T) {
-	zs := logitGrid()
+// bigLogit returns F(z), 1 - F(z), f(z) = F (1 - F) and f'(z) = f (1 - 2F)
+// of the logit link at ulpPrec bits (refExp: math/big).
+func bigLogit(z float64) (F, Fc, f, fp *big.Float) {
+	one := new(big.Float).SetPrec(ulpPrec).SetInt64(1)
+	e := refExp(-z)
+	den := new(big.Float).SetPrec(ulpPrec).Add(one, e)
+	F = new(big.Float).SetPrec(ulpPrec).Quo(one, den)
+	Fc = new(big.Float).SetPrec(ulpPrec).Quo(e, den)
+	f = new(big.Float).SetPrec(ulpPrec).Mul(F, Fc)
+	fp = new(big.Float).SetPrec(ulpPrec).Sub(Fc, F)
+	fp.Mul(fp, f)
+	return F, Fc, f, fp
+}
+
+// TestLogitMiddle checks the middle category of a cumulative logit model
+// from the two points' exponentials (logitMiddle) over pairs a < b of the
+// grid against math/big: log P with P = F(b) - F(a), f(a)/P, f(b)/P and
+// the second derivatives -f'(a)/P - (f(a)/P)^2 and f'(b)/P - (f(b)/P)^2,
+// each in ulps of itself (log P near 0, P near 1, and second derivatives
+// of small probabilities keep their digits; subnormal values in ulps of
+// the smallest normal number), and that the far tails are
+// left to the log-space path with a finite log P.
+func TestLogitMiddle(t *testing.T) {
+	var zs []float64 // the grid's special values and every third of its steps
+	for i, z := range logitGrid() {
+		if i < 44 || i%3 == 0 {
+			zs = append(zs, z)
+		}
+	}
+	worst := map[string]float64{}
 	fast := 0
 	for _, a := range zs {
 		for _, b := range zs {
-			if !(b > a) {
+			if !(b > a) || b-a < 1e-3 {
+				// closer boundaries: log P is as exact as b - a rounded
+				// (checked below against f((a+b)/2) (b - a))
 				continue
 			}
 			pa, pb := newLogitPoint(a), newLogitPoint(b)
-			lp, ra, rb, ok := logitBetween(pa, pb)
-			want := logitDiff(pa, pb)
+			m, ok := logitMiddle(pa, pb)
+			Fa, Fca, fa, fpa := bigLogit(a)
+			Fb, Fcb, fb, fpb := bigLogit(b)
+			P := new(big.Float).SetPrec(ulpPrec).Sub(Fb, Fa)
+			if a+b > 0 { // from the upper tails, which keep the digits there
+				P.Sub(Fca, Fcb)
+			}
+			logP := refLog(P)
+			if Q := new(big.Float).SetPrec(ulpPrec).Add(Fa, Fcb); Q.MantExp(nil) < -60 {
+				// P = 1 - Q near 1: log P = -Q - Q^2/2 to 2^-120 relative
+				logP.Mul(Q, Q)
+				logP.Quo(logP, big.NewFloat(-2)).Sub(logP, Q)
+			}
 			if !ok {
-				if want > -600 {
-					t.Fatalf("logitBetween(%g, %g) declined, log P = %v", a, b, want)
+				t.Fatalf("logitMiddle(%g, %g) failed, P = %v", a, b, P)
+			}
+			if pb.F*pa.Fc < 0x1p-900 {
+				// the log-space path: log P to 1e-13
+				lp, _ := refLog(P).Float64()
+				if !logitNear(m.lp, lp, 1e-13) {
+					t.Fatalf("log P(%g, %g) = %v, math/big %v", a, b, m.lp, lp)
 				}
 				continue
 			}
 			fast++
-			// The log-space path loses digits of b - a itself when the two
-			// points are close (both are exact to rounding of b - a); closer
-			// than 1e-8, P is f((a+b)/2) (b - a) to 1e-15 relative.
-			tol := 1e-13 / math.Min(1, b-a)
-			if b-a < 1e-8 {
-				lf, _ := newLogitPoint(0.5 * (a + b)).logDensity()
-				want, tol = lf+math.Log(b-a), 1e-12
-				if !logitNear(lp, want, tol) {
-					t.Fatalf("log P(%g, %g) = %v, f(mid)(b-a) gives %v", a, b, lp, want)
+			ra := new(big.Float).SetPrec(ulpPrec).Quo(fa, P)
+			rb := new(big.Float).SetPrec(ulpPrec).Quo(fb, P)
+			haa := new(big.Float).SetPrec(ulpPrec).Quo(fpa, P)
+			haa.Neg(haa).Sub(haa, new(big.Float).SetPrec(ulpPrec).Mul(ra, ra))
+			hbb := new(big.Float).SetPrec(ulpPrec).Quo(fpb, P)
+			hbb.Sub(hbb, new(big.Float).SetPrec(ulpPrec).Mul(rb, rb))
+			for _, c := range []struct {
+				what string
+				got  float64
+				want *big.Float
+			}{{"log P", m.lp, logP}, {"f(a)/P", m.ra, ra}, {"f(b)/P", m.rb, rb}, {"d2/da2", m.haa, haa}, {"d2/db2", m.hbb, hbb}} {
+				if c.what != "log P" && min(pa.e, pb.e) < 0x1p-1022 {
+					// a subnormal exponential has lost its digits, and so
+					// have the derivatives formed from it (below 1e-300)
+					continue
 				}
-			}
-			if !logitNear(lp, want, tol) {
-				t.Fatalf("log P(%g, %g) = %v, log space %v", a, b, lp, want)
-			}
-			lfa, _ := pa.logDensity()
-			lfb, _ := pb.logDensity()
-			if wa, wb := math.Exp(lfa-want), math.Exp(lfb-want); !logitNear(ra, wa, tol) || !logitNear(rb, wb, tol) {
-				t.Fatalf("f/P at (%g, %g) = %v, %v; log space %v, %v", a, b, ra, rb, wa, wb)
+				e := ulpErr(c.got, c.want)
+				if e > worst[c.what] {
+					worst[c.what] = e
+				}
+				// 6 ulps, the second derivatives (which square f/P) 12;
+				// b - a below 1/2 is rounded before its expm1
+				lim := 6.0
+				if c.what[0] == 'd' {
+					lim = 12
+				}
+				if b-a < 0.5 {
+					lim += 2 / (b - a) * math.Max(math.Abs(a), math.Abs(b))
+				}
+				if e > lim {
+					t.Errorf("%s at (%g, %g) = %v, math/big %v: %.1f ulp", c.what, a, b, c.got, c.want, e)
+				}
 			}
 		}
 	}
+	t.Logf("largest relative errors (ulp) over %d pairs: %v", fast, worst)
 	if fast == 0 {
-		t.Fatal("logitBetween took no pair")
+		t.Fatal("logitMiddle took no pair")
+	}
+	// Boundaries closer than 1e-3: P is f((a+b)/2) (b - a) (1 + O((b-a)^2)).
+	for _, a := range zs {
+		for _, h := range []float64{1e-4, 1e-8, 1e-12} {
+			b := a + h
+			if !(b > a) || math.Abs(a) > 30 {
+				continue
+			}
+			m, ok := logitMiddle(newLogitPoint(a), newLogitPoint(b))
+			lf, _ := newLogitPoint(0.5 * (a + b)).logDensity()
+			if want := lf + math.Log(b-a); !ok || !logitNear(m.lp, want, 1e-7) {
+				t.Fatalf("log P(%g, %g) = %v, f(mid)(b-a) gives %v", a, b, m.lp, want)
+			}
+		}
 	}
 }
 
@@ -189,6 +260,35 @@ func TestLogitCumulativeProbs(t *testing.T) {
 			if d := math.Abs(p[m] - want); d > 4e-16*scale {
 				t.Errorf("L %v: P(y=%d) = %v, textbook %v", L, m, p[m], want)
 			}
+		}
+	}
+}
+
+// TestLinkTailsShared checks the probit and cloglog tails that share
+// their erfc and expm1 between the value and the derivatives
+// (logPhiMills, Link.lower) against logPhi and millsInv and the cloglog
+// formulas one call each, bit for bit, over the grid.
+func TestLinkTailsShared(t *testing.T) {
+	for _, z := range logitGrid() {
+		v, lam := logPhiMills(z)
+		if wv, wl := logPhi(z), millsInv(z); math.Float64bits(v) != math.Float64bits(wv) || math.Float64bits(lam) != math.Float64bits(wl) {
+			t.Fatalf("logPhiMills(%g) = %v, %v; logPhi, millsInv %v, %v", z, v, lam, wv, wl)
+		}
+		u := math.Exp(z)
+		if u == 0 {
+			continue
+		}
+		a := u / math.Expm1(u)
+		if math.IsInf(math.Expm1(u), 1) {
+			a = 0
+		}
+		d2 := a * (1 - u/(-math.Expm1(-u)))
+		if a == 0 {
+			d2 = 0
+		}
+		want := tail{math.Log(-math.Expm1(-u)), a, d2}
+		if got := Cloglog.lower(z); got != want && !(math.IsNaN(got.d2) && math.IsNaN(want.d2)) {
+			t.Fatalf("cloglog lower(%g) = %v, one call each %v", z, got, want)
 		}
 	}
 }
