@@ -291,14 +291,15 @@ func (r *reader) fastRow(p *fastPlan, t *rowTally, s string, i, hi int, x []floa
 }
 
 // quickSlack is the number of bytes of the text quickRow needs after the
-// start of a field: it reads eight bytes at a time, a cell of at most 16
+// start of a field: it reads eight bytes at a time, a cell of at most 24
 // bytes and what follows it.
-const quickSlack = 24
+const quickSlack = 32
 
 // quickRow reads the line from s[i] as fastRow would, for a plan whose
 // used fields are all numbers and integer codes (plain), when every used
 // cell is written plainly: an optional sign, at most seven digits, and for
-// a number an optional decimal mark and at most seven digits, then the
+// a number an optional decimal mark and at most seven digits (or eight to
+// fifteen, when the digits of the cell are fifteen at most), then the
 // delimiter (or the line end). The digits are found and read eight bytes
 // at a time, in line, with no call per field. It returns where the last
 // field ends: at hi, the line's end as fastLines finds it, or when hi is
@@ -344,7 +345,21 @@ func (p *fastPlan) quickRow(s string, i, hi int, x []float64, row *cells) (int, 
 			w = load8(s, j+1)
 			nd2 = nonDigits(w)
 			m = bits.TrailingZeros64(nd2) >> 3
-			mant = mant*pow10u[m] + eightDigits(w<<(uint(56-8*m)&63)<<8)
+			if nd2 == 0 {
+				// Eight digits after the mark: the next ones too, when the
+				// cell's digits stay at most fifteen (below 2^53, so the
+				// division below stays exact in its operands).
+				w2 := load8(s, j+9)
+				nd2 = nonDigits(w2)
+				m2 := bits.TrailingZeros64(nd2) >> 3
+				if n+8+m2 > 15 {
+					return 0, false
+				}
+				mant = (mant*pow10u[8]+eightDigits(w))*pow10u[m2] + eightDigits(w2<<(uint(56-8*m2)&63)<<8)
+				m = 8 + m2
+			} else {
+				mant = mant*pow10u[m] + eightDigits(w<<(uint(56-8*m)&63)<<8)
+			}
 			j += m + 1
 		}
 		var end bool
@@ -366,7 +381,7 @@ func (p *fastPlan) quickRow(s string, i, hi int, x []float64, row *cells) (int, 
 			row.code = int64(mant) * (1 - 2*int64(sg>>1))
 			continue
 		}
-		// At most 14 digits and a power of ten of at most 7: one
+		// At most 15 digits and a power of ten of at most 15: one
 		// correctly rounded division (see decimal).
 		v := math.Float64frombits(math.Float64bits(float64(mant)/pow10[m]) | uint64(sg>>1)<<63)
 		switch f.kind {
