@@ -65,8 +65,8 @@ func (p *problem) rowWeights(rows int, s *scratch) (wt, ru []float64) {
 // equationWeights returns rl (q x rows): each row's sum_m H_ml for every
 // equation l, from the pairs (H is symmetric) in the order of the pairs;
 // and puts their sum over l, in the order of l, in s.wt. A diagonal H is
-// its own rl (the pairs' columns); a tridiagonal one sums two or three
-// columns for each l in one sweep.
+// its own rl (the pairs' columns); a tridiagonal one is summed row by row
+// (tridiagonalWeights).
 func (p *problem) equationWeights(rows int, s *scratch) []float64 {
 	q := p.q
 	hp := s.hp[:len(p.pairs)*rows]
@@ -81,26 +81,7 @@ func (p *problem) equationWeights(rows int, s *scratch) []float64 {
 		return hp[:q*rows]
 	case tridiagonalPairs:
 		rl := s.rl[:q*rows]
-		// H_00 + H_01; H_(l-1)l + H_ll + H_l(l+1); H_(q-2)(q-1) + H_(q-1)(q-1).
-		r, a, b := rl[:rows], h(0), h(1)[:rows]
-		for i, v := range a {
-			v += b[i]
-			r[i], wt[i] = v, v
-		}
-		for l := 1; l < q-1; l++ {
-			r, a, b, c := rl[l*rows:(l+1)*rows], h(2*l-1), h(2 * l)[:rows], h(2*l + 1)[:rows]
-			for i, v := range a {
-				v = v + b[i] + c[i]
-				r[i] = v
-				wt[i] += v
-			}
-		}
-		r, a, b = rl[(q-1)*rows:q*rows], h(2*q-3), h(2*q - 2)[:rows]
-		for i, v := range a {
-			v += b[i]
-			r[i] = v
-			wt[i] += v
-		}
+		tridiagonalWeights(rl, wt, hp, q, rows)
 		return rl
 	}
 	rl := s.rl[:q*rows]
@@ -161,4 +142,30 @@ func sum4(s *[4]float64, a0, a1, a2, a3 []float64) {
 		s3 += a3[i]
 	}
 	*s = [4]float64{s0, s1, s2, s3}
+}
+
+// tridiagonalWeights puts in rl (q x rows) each row's sum_m H_ml for every
+// equation l when the pairs are tridiagonal (hp: the columns of (0,0),
+// (0,1), (1,1), ..., (q-1,q-1), q >= 2), H_(l-1)l + H_ll + H_l(l+1) added in
+// the order of the pairs as the general form does (the zero it starts from
+// changes no sum), and in wt their sum over l in the order of l. Row by
+// row, each H_l(l+1) read once for both its equations: fewer loads and
+// stores than a sweep over the columns for each l.
+func tridiagonalWeights(rl, wt, hp []float64, q, rows int) {
+	for i := range wt[:rows] {
+		up := hp[rows+i]
+		v := hp[i] + up
+		rl[i] = v
+		w := v
+		for l := 1; l < q-1; l++ {
+			lo := up
+			up = hp[(2*l+1)*rows+i]
+			v = lo + hp[2*l*rows+i] + up
+			rl[l*rows+i] = v
+			w += v
+		}
+		v = up + hp[(2*q-2)*rows+i]
+		rl[(q-1)*rows+i] = v
+		wt[i] = w + v
+	}
 }
