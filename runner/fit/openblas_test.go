@@ -6,13 +6,15 @@ import (
 	"math"
 	"math/rand/v2"
 	"testing"
+
+	"ordplan/runner/fit/internal/openblas"
 )
 
 // TestOpenBLASSameSums checks the calls of the OpenBLAS benchmark: the
 // weighted cross-product of one block by cblas_dsyrk (rows scaled by
 // sqrt(w)) and by cblas_dgemm (U' times WU) equals symCross's to rounding.
 func TestOpenBLASSameSums(t *testing.T) {
-	openblasThreads(1)
+	openblas.Threads(1)
 	for _, K := range []int{1, 3, 11, 45} {
 		const n = 777
 		rng := rand.New(rand.NewPCG(3, uint64(K)))
@@ -25,8 +27,8 @@ func TestOpenBLASSameSums(t *testing.T) {
 		symCross(want, K, u, K, n, w)
 		su, wu := scaledCols(u, w, K, n)
 		syrk, gemm := make([]float64, K*K), make([]float64, K*K)
-		openblasSyrk(syrk, su, K, n)
-		openblasGemm(gemm, u, wu, K, n)
+		openblas.Syrk(syrk, su, K, n)
+		openblas.Gemm(gemm, u, wu, K, n)
 		for a := 0; a < K; a++ {
 			for b := 0; b <= a; b++ {
 				x := want[a*K+b]
@@ -74,13 +76,14 @@ func scaleCols(su, wu, sw, u, w []float64, k, n int) {
 
 // BenchmarkCrossOpenBLAS times the weighted cross-product of one block of
 // 4096 rows and K columns (column-major, the engine's layout) by symCross
-// against OpenBLAS on one thread: cblas_dsyrk on the columns scaled by
+// (the assembly kernel where there is one) and by the Go tiles against
+// OpenBLAS on one thread: cblas_dsyrk on the columns scaled by
 // sqrt(w) (possible only for weights of one sign; the scaling included, and
 // dsyrk also timed alone) and cblas_dgemm of U' and WU (any weights;
 // forming WU included); CPU ns per block (cpu-ns/op). `go test -tags openblas -run '^$' -bench
 // CrossOpenBLAS ./runner/fit/` with libopenblas-dev installed.
 func BenchmarkCrossOpenBLAS(b *testing.B) {
-	openblasThreads(1)
+	openblas.Threads(1)
 	const n = blockRows
 	for _, K := range []int{11, 45, 101} {
 		u, w := crossBenchBlock(K)
@@ -97,14 +100,15 @@ func BenchmarkCrossOpenBLAS(b *testing.B) {
 			})
 		}
 		run("symCross", func() { symCross(dst, K, u, K, n, w) })
+		run("symCrossGo", func() { symCrossGo(dst, K, u, K, n, w) })
 		run("openblas-dsyrk+scaling", func() {
 			scaleCols(su, nil, sw, u, w, K, n)
-			openblasSyrk(dst, su, K, n)
+			openblas.Syrk(dst, su, K, n)
 		})
-		run("openblas-dsyrk", func() { openblasSyrk(dst, su, K, n) })
+		run("openblas-dsyrk", func() { openblas.Syrk(dst, su, K, n) })
 		run("openblas-dgemm+scaling", func() {
 			scaleCols(nil, wu, sw, u, w, K, n)
-			openblasGemm(dst, u, wu, K, n)
+			openblas.Gemm(dst, u, wu, K, n)
 		})
 	}
 }
