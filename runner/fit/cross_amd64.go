@@ -45,21 +45,7 @@ func symCross(dst []float64, ldd int, u []float64, k, n int, w []float64) {
 		symCrossGo(dst, ldd, u, k, n, w)
 		return
 	}
-	var s [32]float64
-	for lo := 0; lo < n; lo += crossAsmPanel {
-		hi := min(lo+crossAsmPanel, n)
-		for a := 0; a < k; a += 4 {
-			na := min(4, k-a)
-			for b := 0; b < a+na; {
-				nb := crossTileWidth(a + na - b)
-				t := crossTile{a: a, na: na, b: b, nb: nb, lower: true}
-				t.load(&s, dst, ldd)
-				crossTileRows(&s, w, u, a, na, u, b, nb, n, lo, hi)
-				t.store(&s, dst, ldd)
-				b += nb
-			}
-		}
-	}
+	crossAsmTiles(dst, ldd, u, k, u, k, n, w, true)
 }
 
 // fullCross adds to dst (ka x kb, row stride ldd) the sums over the n rows
@@ -72,14 +58,26 @@ func fullCross(dst []float64, ldd int, A []float64, ka int, B []float64, kb, n i
 		fullCrossGo(dst, ldd, A, ka, B, kb, n, w)
 		return
 	}
+	crossAsmTiles(dst, ldd, A, ka, B, kb, n, w, false)
+}
+
+// crossAsmTiles adds to dst the sums of fullCross (lower: only those on or
+// below the diagonal, B being A, as symCross) by the assembly kernel, panel
+// after panel of rows, in tiles of 4 columns of A by 8 of B (fewer at the
+// ends).
+func crossAsmTiles(dst []float64, ldd int, A []float64, ka int, B []float64, kb, n int, w []float64, lower bool) {
 	var s [32]float64
 	for lo := 0; lo < n; lo += crossAsmPanel {
 		hi := min(lo+crossAsmPanel, n)
 		for a := 0; a < ka; a += 4 {
 			na := min(4, ka-a)
-			for b := 0; b < kb; {
-				nb := crossTileWidth(kb - b)
-				t := crossTile{a: a, na: na, b: b, nb: nb}
+			end := kb
+			if lower {
+				end = a + na
+			}
+			for b := 0; b < end; {
+				nb := crossTileWidth(end - b)
+				t := crossTile{a: a, na: na, b: b, nb: nb, lower: lower}
 				t.load(&s, dst, ldd)
 				crossTileRows(&s, w, A, a, na, B, b, nb, n, lo, hi)
 				t.store(&s, dst, ldd)
