@@ -52,63 +52,38 @@ func weightOf(w []float64, i int) float64 {
 }
 
 // tailKernels is blockKernels for a stage or stacked model under the logit
-// link with observed derivatives: the log-tails of the equations
-// kernel.tailRange gives each row (one exponential each, one log1p for
-// all), the first derivatives -F or 1 - F and the diagonal second
-// derivatives -F (1 - F). Equation by equation over the block's rows: the
-// rows' z and e^-|z| (expNegAbsTo, also for rows the equation does not
-// enter), then each row's shares of the sums of logitTails and its
-// derivatives, selected without a branch (pick: a row enters the equation
-// or not, above or below its category); then each row's log1p, in the
-// order of the rows. The same sums in the same order as the general
-// kernel: its values bit for bit.
+// link with observed derivatives: per row the log-tails of the equations
+// kernel.tailRange gives (one exponential each, one log1p for all), the
+// first derivatives -F or 1 - F and the diagonal second derivatives
+// -F (1 - F).
 func (p *problem) tailKernels(c *coefs, lo, rows, order int, a *acc, s *scratch) bool {
 	k, q, es := &p.ker, p.q, s.etaStride
 	y := p.d.y[lo : lo+rows]
 	gs, hp, w := p.kernelColumns(lo, rows, order, s)
-	t, ranges := s.kernelTemp(4, rows)
-	n := len(y)
-	z, e, sh, tt := t[:n], t[n:2*n], t[2*n:3*n], t[3*n:4*n]
-	clear(sh)
-	clear(tt)
-	// Each row's equations, mlo[i]..mhi[i]-1; none for a row of weight 0.
-	mlo, mhi := ranges[:n], ranges[n:2*n]
 	for i, yi := range y {
-		mlo[i], mhi[i] = k.tailRange(yi)
-		if weightOf(w, i) == 0 {
-			mhi[i] = mlo[i]
-		}
-	}
-	for m := range q {
-		eta, tau := s.eta[m*es:m*es+n], c.tau[m]
-		for i, v := range eta {
-			z[i] = tau - v
-		}
-		expNegAbsTo(e, z)
-		gm, hm := gs[m*rows:m*rows+n], hp[p.pairAt[m*q+m]*rows:][:n]
-		for i, yi := range y {
-			in := b2i(m >= mlo[i])&b2i(m < mhi[i]) != 0
-			upper := m < yi
-			pt := logitPointOf(z[i], e[i])
-			// logitTails.add, or nothing (x + 0 is x).
-			sh[i] += pick(in, pick(upper, max(pt.z, 0), max(-pt.z, 0)), 0)
-			tt[i] += pick(in, pt.e+tt[i]*pt.e, 0)
-			// As the general kernel forms them: 0 plus the derivative.
-			wi := weightOf(w, i)
-			if order >= 1 {
-				gm[i] = pick(in, wi*(0+pick(upper, -pt.F, pt.Fc)), 0)
-			}
-			if order >= 2 {
-				hm[i] = pick(in, wi*(0+-pt.F*pt.Fc), 0)
-			}
-		}
-	}
-	for i := range y {
 		wi := weightOf(w, i)
 		if wi == 0 {
 			continue
 		}
-		lp := -sh[i] - fastLog1p(tt[i])
+		mlo, mhi := k.tailRange(yi)
+		var t logitTails
+		for m := mlo; m < mhi; m++ {
+			pt := newLogitPoint(c.tau[m] - s.eta[m*es+i])
+			upper := m < yi
+			t.add(pt, upper)
+			// As the general kernel forms them: 0 plus the derivative.
+			if order >= 1 {
+				d1 := pt.Fc
+				if upper {
+					d1 = -pt.F
+				}
+				gs[m*rows+i] = wi * (0 + d1)
+			}
+			if order >= 2 {
+				hp[p.pairAt[m*q+m]*rows+i] = wi * (0 + -pt.F*pt.Fc)
+			}
+		}
+		lp := t.sum()
 		if math.IsInf(lp, -1) || math.IsNaN(lp) {
 			return false
 		}
