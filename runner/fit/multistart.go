@@ -15,11 +15,11 @@ const StatusNotIdentified Status = "not_identified"
 // model.
 type StartRecord struct {
 	Label       string  // "user", "parallel", "rank1", "random1 (drawn with phi[2] = 1)", ...
-	LogLik      float64 // log-likelihood at the end (NaN: no valid point)
+	LogLik      float64 // log-likelihood at the end (NaN: no valid point, or abandoned on the approximation alone before any pass over the data)
 	MaxAbsScore float64 // largest absolute score there
 	ReachedBest bool    // within 1e-6 of the best log-likelihood
 	Status      Status  // StatusOK: converged; StatusNotIdentified: stationary but flat; else StatusNotConverged
-	Iterations  int     // Newton iterations on the data (0 when the start shared another's fit)
+	Iterations  int     // Newton iterations on the data (0 when the start shared another's fit or was abandoned on the approximation alone)
 	Reason      string  // why the Newton iterations stopped
 	// Screened: the start was first carried to a maximum of the quadratic
 	// approximation of the log-likelihood around the unconstrained partial
