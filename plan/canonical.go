@@ -90,6 +90,9 @@ type canonModels struct {
 	Effects    []fit.Structure  `json:"effects"`
 	Links      []fit.Link       `json:"links"`
 	Partial    *canonPartial    `json:"partial,omitempty"`
+	// RunEveryStart is omitted when false: plans without it keep their
+	// canonical form and hash.
+	RunEveryStart bool `json:"run_every_start,omitempty"`
 }
 
 type canonPartial struct {
@@ -196,6 +199,7 @@ func (p *Plan) canonical() canonPlan {
 	if p.Models.HasApproach(fit.Stage) {
 		c.Models.Direction = optional(p.Models.Direction)
 	}
+	c.Models.RunEveryStart = p.Models.RunEveryStart
 	if p.Models.HasEffects(fit.PartialEffects) || p.Models.HasEffects(fit.ConstrainedEffects) {
 		pa := &canonPartial{Free: p.Models.Partial.Free}
 		if s := p.Models.Partial.Select; s != nil {

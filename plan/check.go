@@ -22,6 +22,7 @@ func (d *decoder) check(p *Plan) {
 	d.checkImputation(p)
 	d.checkApproaches(p)
 	d.checkPartial(p)
+	d.checkStarts(p)
 	d.checkGroups(p)
 	d.checkRules(p)
 	if d.predictorsKnown(p) {

@@ -20,6 +20,15 @@ func (d *decoder) checkApproaches(p *Plan) {
 	}
 }
 
+// checkStarts refuses models.run_every_start when no effect structure of
+// the grid is searched from several starts.
+func (d *decoder) checkStarts(p *Plan) {
+	mo := p.Models
+	if d.given("models.run_every_start") && d.clean("models.effects") && !mo.HasEffects(fit.ConstrainedEffects) && !mo.HasEffects(fit.StereotypeEffects) {
+		d.errAt("models.run_every_start", "applies only to constrained and stereotype models (searched from several starts), and models.effects includes neither")
+	}
+}
+
 // checkPartial checks that the partial set exists exactly when an effect structure
 // uses it, and names real predictors.
 func (d *decoder) checkPartial(p *Plan) {

@@ -19,6 +19,7 @@ func (d *decoder) decodeModels(n *yaml.Node, mo *Models) {
 	m.word("direction", "direction", directionWords, &mo.Direction)
 	typedWords(m, "effects", "effect structure", fit.StructureWords, fit.StructureWords.All(), false, &mo.Effects)
 	typedWords(m, "links", "link", fit.LinkWords, fit.LinkWords.All(), false, &mo.Links)
+	m.boolean("run_every_start", &mo.RunEveryStart)
 	d.decodePartial(m.get("partial"), &mo.Partial)
 }
 

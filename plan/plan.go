@@ -125,6 +125,9 @@ type Models struct {
 	Effects    []fit.Structure  // effect structures; default all but stereotype
 	Links      []fit.Link       // default [logit]
 	Partial    Partial
+	// RunEveryStart runs every start of a constrained or stereotype
+	// search to its end (fit.Options.KeepStarts).
+	RunEveryStart bool
 }
 
 // Partial says which predictors leave the parallel structure in the

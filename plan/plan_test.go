@@ -203,6 +203,10 @@ func TestBadPlans(t *testing.T) {
 			[]string{`bad.yaml:8:26: models.links[2]: "logit" is listed twice (first at line 8)`}},
 		{"unknown direction", "models:\n", "models:\n  direction: sideways\n",
 			[]string{`models.direction: unknown direction "sideways" (want forward or backward)`}},
+		{"run_every_start without a search from several starts", "models:\n", "models:\n  effects: [parallel, nonparallel]\n  run_every_start: true\n",
+			[]string{`bad.yaml:9:20: models.run_every_start: applies only to constrained and stereotype models (searched from several starts), and models.effects includes neither`}},
+		{"run_every_start not a boolean", "models:\n", "models:\n  run_every_start: always\n",
+			[]string{`models.run_every_start: want true or false, got string "always"`}},
 		{"direction without stage", "models:\n", "models:\n  approaches: [cumulative]\n  direction: backward\n",
 			[]string{`bad.yaml:9:14: models.direction: only the stage approach has a direction`}},
 		{"unknown test", "", "tests:\n  parallel_lines: [brant, chow]\n",
@@ -529,6 +533,40 @@ func TestCanonical(t *testing.T) {
 	}
 	if !bytes.Equal(r.Canonical(), s.Canonical()) || r.Hash == s.Hash {
 		t.Errorf("canonical form depends on layout, or hash does not")
+	}
+}
+
+// models.run_every_start decodes, and enters the canonical form only when
+// true: plans without it (or with false) keep their canonical form.
+func TestRunEveryStart(t *testing.T) {
+	parse := func(src string) *Plan {
+		t.Helper()
+		p, err := Parse([]byte(src), "a.yaml")
+		if err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	without := parse(base)
+	off := parse(strings.Replace(base, "models:\n", "models:\n  run_every_start: false\n", 1))
+	on := parse(strings.Replace(base, "models:\n", "models:\n  run_every_start: true\n", 1))
+	if without.Models.RunEveryStart || off.Models.RunEveryStart || !on.Models.RunEveryStart {
+		t.Errorf("run_every_start decoded as %v (absent), %v (false), %v (true)", without.Models.RunEveryStart, off.Models.RunEveryStart, on.Models.RunEveryStart)
+	}
+	if !bytes.Equal(without.Canonical(), off.Canonical()) || bytes.Contains(without.Canonical(), []byte("run_every_start")) {
+		t.Errorf("run_every_start: false changes the canonical form:\n%s", off.Canonical())
+	}
+	c := on.Canonical()
+	if !bytes.Contains(c, []byte(`"run_every_start": true`)) {
+		t.Errorf("canonical plan lacks run_every_start:\n%s", c)
+	}
+	if q, err := Parse(c, "plan.json"); err != nil || !q.Models.RunEveryStart {
+		t.Errorf("canonical plan loses run_every_start: %v", err)
+	}
+	// The stereotype structure is searched from several starts too.
+	st := parse(strings.Replace(base, "models:\n  partial:\n    free: [a]\n", "models:\n  approaches: [adjacent]\n  effects: [parallel, stereotype]\n  run_every_start: true\n", 1))
+	if !st.Models.RunEveryStart {
+		t.Error("run_every_start not read with stereotype models")
 	}
 }
 

@@ -97,7 +97,7 @@ func TestKeyHelpListsEveryKey(t *testing.T) {
 			t.Errorf("help plan lacks %q", w)
 		}
 	}
-	if got := strings.Join(keysAt("models"), ","); got != "approaches,direction,effects,links,partial" {
+	if got := strings.Join(keysAt("models"), ","); got != "approaches,direction,effects,links,partial,run_every_start" {
 		t.Errorf("models keys %s", got)
 	}
 }

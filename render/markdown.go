@@ -141,11 +141,39 @@ func writeLimits(d *doc, r *runner.Result) {
 		"Each model assumes that observations are independent given the predictors, that the link function is right, and that the predictors enter as the plan's terms state them (linearly, or through the stated coding of categorical predictors, transformations, polynomials, splines and interactions); a relation of another shape is not found by the model.",
 		"Tests of the parallel-lines assumption reject easily in large samples: a small p-value can reflect a difference between boundaries too small to matter in practice. Look at the effects across boundaries before giving up a simpler model.",
 		"Cumulative partial and nonparallel models can predict negative category probabilities for some covariate values (their cumulative probabilities cross). The number of rows of the data where this happens is shown for every model, and predictions on the grid of the focus predictor are checked too; predictions outside the observed covariate range are more exposed.",
-		"Constrained (common-factor) models can have several local maxima; ordplan fits them from several starting points and keeps the best.",
+		startsSentence(r),
 		rows,
 		"The chosen model's standard errors, p-values and intervals (of its estimates, predicted probabilities and marginal effects) treat it as fixed in advance, not as the result of the selection made by the rules, and of any stepwise choice of partial effects, on the same data: they leave out the uncertainty of that selection, so intervals tend to be too narrow and p-values too small.",
 		"Standard errors of predicted probabilities and marginal effects use the delta method: they are first-order approximations.",
 	})
+}
+
+// startsSentence says how the searches from several starts were run:
+// every start to its end (models.run_every_start), or with starts
+// abandoned early, screened first on an approximation when the data have
+// more rows than the fits' screening threshold.
+func startsSentence(r *runner.Result) string {
+	s := "Constrained (common-factor) and stereotype models can have several local maxima; ordplan fits them from several starting points and keeps the best."
+	if r.Plan.Models.RunEveryStart {
+		return s + " With `models.run_every_start` every start was run to its end, none abandoned early."
+	}
+	opt := fit.Options{}
+	if r.Analysis != nil {
+		opt = r.Analysis.Fit
+	}
+	above, screened := opt.ScreenRows(), false
+	for _, or := range r.Outcomes {
+		if or.FitData != nil && or.FitData.N() > above {
+			screened = true
+		}
+	}
+	s += " A start that shows it cannot reach the best log-likelihood found so far is abandoned early, so a count of starts reaching the best counts only the starts run to it"
+	if screened {
+		s += fmt.Sprintf("; with more than %d rows, as here, the starts are first screened on a quadratic approximation of the log-likelihood around the corresponding unconstrained fit, and some are abandoned on the approximation alone.", above)
+	} else {
+		s += fmt.Sprintf(" (with more than %d rows, not the case here, the starts would first be screened on a quadratic approximation of the log-likelihood around the corresponding unconstrained fit).", above)
+	}
+	return s + " `models.run_every_start: true` runs every start to its end (slower; for checking the search)."
 }
 
 // joinWords lists words of a vocabulary, comma separated.

@@ -131,6 +131,7 @@ func ResolvePlan(p *plan.Plan) *Analysis {
 		a.Imputation = p.Data.Imputation
 	}
 	a.Fit = a.Errors.fitOptions(1) // the grid runs its fits in parallel
+	a.Fit.KeepStarts = p.Models.RunEveryStart
 	for _, oc := range p.Outcomes {
 		spec := p.DesignSpec(oc)
 		dopt := data.Options{

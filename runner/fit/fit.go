@@ -56,6 +56,11 @@ func (d *Data) columns(lo, rows int, u []float64, all []int) {
 	gatherRows(u, all, d.X[lo*w:(lo+rows)*w], w, rows, all, nil, nil)
 }
 
+// ScreenRows is the number of rows above which the starts of a search
+// are screened on the approximation: ScreenAbove with its default
+// (negative: at any size).
+func (o Options) ScreenRows() int { return o.screenAbove() }
+
 // screenAbove is ScreenAbove with its default.
 func (o Options) screenAbove() int {
 	if o.ScreenAbove == 0 {
