@@ -154,8 +154,12 @@ func writeLimits(d *doc, r *runner.Result) {
 // more rows than the fits' screening threshold.
 func startsSentence(r *runner.Result) string {
 	s := "Constrained (common-factor) and stereotype models can have several local maxima; ordplan fits them from several starting points and keeps the best."
-	if r.Plan.Models.RunEveryStart {
+	mo := r.Plan.Models
+	if mo.RunEveryStart {
 		return s + " With `models.run_every_start` every start was run to its end, none abandoned early."
+	}
+	if !mo.HasEffects(fit.ConstrainedEffects) && !mo.HasEffects(fit.StereotypeEffects) {
+		return s // this plan has none, and the plan key is refused without them
 	}
 	opt := fit.Options{}
 	if r.Analysis != nil {

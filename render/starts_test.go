@@ -16,7 +16,7 @@ import (
 func TestStartsSentence(t *testing.T) {
 	above := fit.Options{}.ScreenRows()
 	result := func(every bool, rows int) *runner.Result {
-		return &runner.Result{Plan: &plan.Plan{Models: plan.Models{RunEveryStart: every}},
+		return &runner.Result{Plan: &plan.Plan{Models: plan.Models{RunEveryStart: every, Effects: []fit.Structure{fit.ParallelEffects, fit.ConstrainedEffects}}},
 			Outcomes: []*runner.OutcomeResult{{FitData: &fit.Data{Y: make([]int, rows)}}}}
 	}
 	cases := []struct {
@@ -27,6 +27,12 @@ func TestStartsSentence(t *testing.T) {
 		{true, above + 1, []string{"every start was run to its end, none abandoned early"}, []string{"screened"}},
 		{false, above + 1, []string{"abandoned early", "as here, the starts are first screened", "`models.run_every_start: true`"}, []string{"not the case here"}},
 		{false, above, []string{"abandoned early", "not the case here", "`models.run_every_start: true`"}, []string{"as here"}},
+	}
+	// A plan without searches from several starts is not told to set the key.
+	none := result(false, above+1)
+	none.Plan.Models.Effects = []fit.Structure{fit.ParallelEffects}
+	if s := startsSentence(none); strings.Contains(s, "run_every_start") || strings.Contains(s, "abandoned") {
+		t.Errorf("without constrained or stereotype models: %q", s)
 	}
 	for _, c := range cases {
 		s := startsSentence(result(c.every, c.rows))
