@@ -455,17 +455,17 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("want one line per problem, got %d lines", n+1)
 				}
 			}},
-		{id: "P20", name: "thousands of problems", args: []string{"check"},
+		{id: "P30", name: "thousands of problems", args: []string{"check"},
 			plan: edit("[a, b]", "[a, b"+strings.Repeat(", a", 5000)+"]"), code: 1, lines: true,
-			want: []string{`P20.yaml:6:`, `"a" is listed twice`, "P20.yaml: ... and 4960 more problems"},
+			want: []string{`P30.yaml:6:`, `"a" is listed twice`, "P30.yaml: ... and 4960 more problems"},
 			check: func(t *testing.T, dir, out, errs string) {
 				if n := strings.Count(strings.TrimSpace(errs), "\n") + 1; n != 41 {
 					t.Errorf("want 40 problems and a count, got %d lines", n)
 				}
 			}},
-		{id: "P21", name: "plan that is not a regular file", args: []string{"check", "/dev/zero"}, code: 1,
+		{id: "P31", name: "plan that is not a regular file", args: []string{"check", "/dev/zero"}, code: 1,
 			want: []string{"/dev/zero: is not a regular file (a named pipe, a device or a folder): give the plan as a file"}},
-		{id: "P22", name: "plan file over 4 MB", args: []string{"check", d("huge.yaml")}, code: 1,
+		{id: "P32", name: "plan file over 4 MB", args: []string{"check", d("huge.yaml")}, code: 1,
 			want: []string{"huge.yaml: has 4194305 bytes; a plan is a short text file of at most 4194304 bytes"}},
 
 		// Multiply imputed data.
