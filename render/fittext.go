@@ -45,7 +45,7 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 	if ds.File != "" {
 		fmt.Fprintf(tw, "Data\t%s: %d rows read, %d used; %s\n", ds.File, ds.RowsRead, ds.RowsUsed, ds.DropSummary)
 	}
-	fmt.Fprintf(tw, "Observations\t%s\n", numfmt.Num(r.NObs))
+	fmt.Fprintf(tw, "Observations\t%s\n", numfmt.Count(r.NObs))
 	fmt.Fprintf(tw, "Status\t%s\n", statusLine(r))
 	if r.OK() {
 		fmt.Fprintf(tw, "Log-likelihood\t%s\n", numfmt.Fixed(r.LogLik, 6))
@@ -83,7 +83,11 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 func statusLine(r *fit.Result) string {
 	switch r.Status {
 	case fit.StatusOK, fit.StatusNegativeProbs:
-		return fmt.Sprintf("%s: converged in %d Newton iterations, max |score| %.2g", r.Status, r.Iterations, r.MaxAbsScore)
+		its := "iterations"
+		if r.Iterations == 1 {
+			its = "iteration"
+		}
+		return fmt.Sprintf("%s: converged in %d Newton %s, max |score| %.2g", r.Status, r.Iterations, its, r.MaxAbsScore)
 	}
 	return string(r.Status)
 }

@@ -41,7 +41,7 @@ func writeData(d *doc, or *runner.OutcomeResult) {
 	ds := or.Data
 	d.h(3, "Data")
 	d.p("Outcome column `%s`, %d categories in this order: %s. %d rows read, %d used; %s. Observations (sum of weights): %s.",
-		or.Outcome.Column, len(ds.Categories), strings.Join(ds.Categories, " < "), ds.RowsRead, ds.N, ds.DropSummary(), numfmt.Num(ds.NObs()))
+		or.Outcome.Column, len(ds.Categories), strings.Join(ds.Categories, " < "), ds.RowsRead, ds.N, ds.DropSummary(), numfmt.Count(ds.NObs()))
 	var rows [][]string
 	for j, l := range ds.Categories {
 		rows = append(rows, []string{l, numfmt.Num(ds.Counts[j]), numfmt.Fixed(100*ds.Counts[j]/ds.NObs(), 1) + "%"})

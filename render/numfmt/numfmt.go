@@ -3,6 +3,7 @@ package numfmt
 import (
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 )
 
@@ -27,6 +28,18 @@ func Num(x float64) string {
 		}
 	}
 	return fmt.Sprintf("%.4e", x)
+}
+
+// Count formats a count or a sum of weights: a whole number below 2^53
+// in full (1000000, not 1.0000e+06), anything else as Num.
+func Count(x float64) string {
+	if x == 0 {
+		return "0"
+	}
+	if x == math.Trunc(x) && math.Abs(x) < 1<<53 {
+		return strconv.FormatFloat(x, 'f', 0, 64)
+	}
+	return Num(x)
 }
 
 // Fixed formats with d decimals.

@@ -43,6 +43,32 @@ func TestNum(t *testing.T) {
 	}
 }
 
+// Count: whole counts and sums of weights in full, up to 2^53; fractions
+// and what is not a number as Num.
+func TestCount(t *testing.T) {
+	cases := []struct {
+		x    float64
+		want string
+	}{
+		{0, "0"},
+		{math.Copysign(0, -1), "0"},
+		{1734, "1734"},
+		{1e6, "1000000"},
+		{950000, "950000"},
+		{1 << 52, "4503599627370496"},
+		{1 << 53, "9.0072e+15"},
+		{1734.5, "1734.5"},
+		{1234567.5, "1.2346e+06"},
+		{math.NaN(), "n/a"},
+		{math.Inf(1), "inf"},
+	}
+	for _, c := range cases {
+		if got := Count(c.x); got != c.want {
+			t.Errorf("Count(%v) = %q, want %q", c.x, got, c.want)
+		}
+	}
+}
+
 // Fixed rounds the exact binary value (0.125 is exact and goes to the even
 // neighbour; 1.005 is stored just below and goes down); what is not a
 // number reads as in Num.
