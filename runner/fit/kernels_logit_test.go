@@ -74,6 +74,14 @@ func TestBlockKernelsAsGeneral(t *testing.T) {
 								t.Fatalf("%s J=%d row %d (weight 0): g[%d] = %v", tc.name, J, i, mm, v)
 							}
 						}
+						for pi := range p.pairs {
+							if order < 2 {
+								break
+							}
+							if v := s.hp[pi*n+i]; v != 0 {
+								t.Fatalf("%s J=%d row %d (weight 0): h of pair %d = %v", tc.name, J, i, pi, v)
+							}
+						}
 						continue
 					}
 					for mm := range L {

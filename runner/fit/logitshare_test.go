@@ -282,13 +282,88 @@ func TestLinkTailsShared(t *testing.T) {
 		if math.IsInf(math.Expm1(u), 1) {
 			a = 0
 		}
-		d2 := a * (1 - u/(-math.Expm1(-u)))
-		if a == 0 {
-			d2 = 0
-		}
-		want := tail{math.Log(-math.Expm1(-u)), a, d2}
-		if got := Cloglog.lower(z); got != want && !(math.IsNaN(got.d2) && math.IsNaN(want.d2)) {
+		want := tail{math.Log(-math.Expm1(-u)), a, 0}
+		if got := Cloglog.lower(z); got.v != want.v || got.d1 != want.d1 {
 			t.Fatalf("cloglog lower(%g) = %v, one call each %v", z, got, want)
 		}
+	}
+}
+
+// TestCloglogLowerCurvature: the cloglog lower tail's second derivative,
+// d2 = a (1 - u/F) with u = e^z, a = u/(e^u - 1), F = 1 - e^-u, formed as
+// -a bend(u) (u/F) so that the bracket does not cancel while u is small,
+// against the same expression at 256 bits (math/big: power series where u
+// is below 1, refExp beyond), for the u the code forms from z. The bracket
+// written as it reads loses digits there: at z = -20 most of them, which
+// this test would see (checked at the end, so that it can fail).
+func TestCloglogLowerCurvature(t *testing.T) {
+	const prec = 256
+	// series is the sum over k >= from of u^k/k!, every term added
+	// (alternate: the terms of k with the parity of from added, the
+	// others subtracted), until the terms fall below the sum's last bit.
+	series := func(u float64, from int, alternate bool) *big.Float {
+		bu := new(big.Float).SetPrec(prec).SetFloat64(u)
+		sum := new(big.Float).SetPrec(prec)
+		term := new(big.Float).SetPrec(prec).SetInt64(1)
+		for k := 1; k < 400; k++ {
+			term.Mul(term, bu)
+			term.Quo(term, new(big.Float).SetPrec(prec).SetInt64(int64(k)))
+			if k < from {
+				continue
+			}
+			if alternate && (k-from)%2 == 1 {
+				sum.Sub(sum, term)
+			} else {
+				sum.Add(sum, term)
+			}
+			if sum.Sign() != 0 && term.MantExp(nil) < sum.MantExp(nil)-prec-8 {
+				break
+			}
+		}
+		return sum
+	}
+	ref := func(u float64) *big.Float {
+		var g, F, E *big.Float // e^-u - 1 + u, 1 - e^-u, e^u - 1
+		if u < 1 {
+			g, F, E = series(u, 2, true), series(u, 1, true), series(u, 1, false)
+		} else {
+			one := new(big.Float).SetPrec(prec).SetInt64(1)
+			bu := new(big.Float).SetPrec(prec).SetFloat64(u)
+			em := refExp(-u)
+			g = new(big.Float).SetPrec(prec).Sub(em, one)
+			g.Add(g, bu)
+			F = new(big.Float).SetPrec(prec).Sub(one, em)
+			E = new(big.Float).SetPrec(prec).Sub(refExp(u), one)
+		}
+		d := new(big.Float).SetPrec(prec).Quo(new(big.Float).SetPrec(prec).SetFloat64(u), E)
+		d.Mul(d, g)
+		d.Quo(d, F)
+		return d.Neg(d)
+	}
+	worst, worstZ := 0.0, 0.0
+	var zs []float64
+	for i := -2800; i <= 26; i++ {
+		zs = append(zs, float64(i)*0.25)
+	}
+	zs = append(zs, -1e-8, -36.7, -745)
+	for _, z := range zs {
+		u := math.Exp(z)
+		if u == 0 || math.IsInf(math.Expm1(u), 1) {
+			continue
+		}
+		got := Cloglog.lower(z).d2
+		if e := ulpErr(got, ref(u)); e > worst {
+			worst, worstZ = e, z
+		}
+	}
+	t.Logf("cloglog lower d2: largest error %.2f ulp (z = %g)", worst, worstZ)
+	if worst > 8 {
+		t.Errorf("cloglog lower d2: %.2f ulp at z = %g, want at most 8", worst, worstZ)
+	}
+	// The bracket as it reads, at z = -20: far from the reference.
+	u := math.Exp(-20.0)
+	naive := u / math.Expm1(u) * (1 - u/(-math.Expm1(-u)))
+	if e := ulpErr(naive, ref(u)); e < 1e3 {
+		t.Errorf("a (1 - u/F) at z = -20 is within %.2g ulp: the check above would not see the cancellation", e)
 	}
 }
