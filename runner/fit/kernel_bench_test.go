@@ -24,13 +24,7 @@ func BenchmarkBlockKernels(b *testing.B) {
 	for _, tc := range speedTargetModels {
 		d := speedData(blockRows, 10, tc.J)
 		m := speedModel(tc.c, Parallel, 10)
-		ly, err := newLayout(m, d.J, d.Predictors)
-		if err != nil {
-			b.Fatal(err)
-		}
-		p := newProblem(d.design(), m, ly, 1)
-		theta := make([]float64, len(ly.params))
-		copy(theta, marginalCutpoints(d, m))
+		p, theta := atMarginalCutpoints(b, d, m)
 		for i := range theta[d.J-1:] {
 			theta[d.J-1+i] = 0.05 * float64(i%3-1)
 		}
@@ -80,4 +74,18 @@ func BenchmarkIterationParts(b *testing.B) {
 			b.ReportMetric(it/(ref+ke), "ratio")
 		})
 	}
+}
+
+// atMarginalCutpoints is the problem of model m on d with one worker and
+// a parameter vector with the marginal cutpoints and zero slopes: the
+// starting point of the kernel tests and benchmarks.
+func atMarginalCutpoints(tb testing.TB, d *Data, m Model) (*problem, []float64) {
+	ly, err := newLayout(m, d.J, d.Predictors)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	p := newProblem(d.design(), m, ly, 1)
+	theta := make([]float64, len(ly.params))
+	copy(theta, marginalCutpoints(d, m))
+	return p, theta
 }

@@ -34,13 +34,7 @@ func TestBlockKernelsAsGeneral(t *testing.T) {
 				d.Weights[i] = []float64{0, 0.25, 1, 3}[rng.IntN(4)]
 			}
 			m := Model{Comparison: tc.c, Backward: tc.backward, Link: Logit, Effects: []Effect{Parallel, Nonparallel, Parallel}}
-			ly, err := newLayout(m, d.J, d.Predictors)
-			if err != nil {
-				t.Fatal(err)
-			}
-			p := newProblem(d.design(), m, ly, 1)
-			theta := make([]float64, len(ly.params))
-			copy(theta, marginalCutpoints(d, m))
+			p, theta := atMarginalCutpoints(t, d, m)
 			if tc.c != Cumulative {
 				for i := range theta[:J-1] {
 					theta[i] += rng.NormFloat64()

@@ -22,13 +22,7 @@ func TestRowSumsSameAsCrossProducts(t *testing.T) {
 				}
 				m := speedModel(c, Parallel, 4)
 				m.Link = Probit
-				ly, err := newLayout(m, d.J, d.Predictors)
-				if err != nil {
-					t.Fatal(err)
-				}
-				p := newProblem(d.design(), m, ly, 1)
-				theta := make([]float64, len(ly.params))
-				copy(theta, marginalCutpoints(d, m))
+				p, theta := atMarginalCutpoints(t, d, m)
 				for i := J - 1; i < len(theta); i++ {
 					theta[i] = 0.1 * float64(i%3-1)
 				}
