@@ -13,61 +13,55 @@ import (
 // log-likelihood, effects, phi, every estimate and its observed-information
 // standard error. Sources: see refSources.
 func TestReferenceConstrained(t *testing.T) {
-	for _, name := range refNames {
-		rs := loadRef(t, name)
-		for _, rm := range rs.models {
-			if len(rm.Constrained) == 0 {
-				continue
-			}
-			rm := rm
-			// Also with the subsample stage at any size: the partial and
-			// parallel fits the starts are built from take it.
-			for _, opt := range []Options{{}, {SubsampleAbove: 1}} {
-				t.Run(fmt.Sprintf("%s/%s/subsample-above-%d", name, rm.ID, opt.SubsampleAbove), func(t *testing.T) {
-					t.Logf("data: %s", refSources[name])
-					m := rm.modelOf(t)
-					res, err := Fit(rs.data(rm.Predictors), m, opt)
-					if err != nil {
-						t.Fatal(err)
-					}
-					if !res.OK() {
-						t.Fatalf("status %s: %s", res.Status, res.Message)
-					}
-					if math.Abs(res.LogLik-*rm.LogLik) > tolLL {
-						t.Errorf("loglik %.10f, reference %.10f", res.LogLik, *rm.LogLik)
-					}
-					if res.NParams != rm.NParams {
-						t.Errorf("n_params %d want %d", res.NParams, rm.NParams)
-					}
-					for k, p := range rm.Predictors {
-						for j, want := range rm.Effects[p] {
-							if !near(res.Effects[j][k], want, 1e-5, 1e-7) {
-								t.Errorf("effect %s eq %d = %.8g, want %.8g", p, j+1, res.Effects[j][k], want)
-							}
+	for _, rec := range refRecords(t, true) {
+		name, rs, rm := rec.name, rec.rs, rec.rm
+		// Also with the subsample stage at any size: the partial and
+		// parallel fits the starts are built from take it.
+		for _, opt := range []Options{{}, {SubsampleAbove: 1}} {
+			t.Run(fmt.Sprintf("%s/%s/subsample-above-%d", name, rm.ID, opt.SubsampleAbove), func(t *testing.T) {
+				t.Logf("data: %s", refSources[name])
+				m := rm.modelOf(t)
+				res, err := Fit(rs.data(rm.Predictors), m, opt)
+				if err != nil {
+					t.Fatal(err)
+				}
+				if !res.OK() {
+					t.Fatalf("status %s: %s", res.Status, res.Message)
+				}
+				if math.Abs(res.LogLik-*rm.LogLik) > tolLL {
+					t.Errorf("loglik %.10f, reference %.10f", res.LogLik, *rm.LogLik)
+				}
+				if res.NParams != rm.NParams {
+					t.Errorf("n_params %d want %d", res.NParams, rm.NParams)
+				}
+				for k, p := range rm.Predictors {
+					for j, want := range rm.Effects[p] {
+						if !near(res.Effects[j][k], want, 1e-5, 1e-7) {
+							t.Errorf("effect %s eq %d = %.8g, want %.8g", p, j+1, res.Effects[j][k], want)
 						}
 					}
-					for j, want := range rm.Phi {
-						if len(res.Phi) != 1 || !near(res.Phi[0][j], want, 1e-5, 1e-7) {
-							t.Errorf("phi %v, want %v", res.Phi, rm.Phi)
-							break
-						}
+				}
+				for j, want := range rm.Phi {
+					if len(res.Phi) != 1 || !near(res.Phi[0][j], want, 1e-5, 1e-7) {
+						t.Errorf("phi %v, want %v", res.Phi, rm.Phi)
+						break
 					}
-					for i, n := range res.ParamNames {
-						want, ok := rm.Estimates[n]
-						if !ok {
-							t.Errorf("parameter %s not in the reference (%s)", n, keys(rm.Estimates))
-							continue
-						}
-						if !near(res.Estimates[i], want, 1e-5, 1e-7) {
-							t.Errorf("%s = %.10g, want %.10g", n, res.Estimates[i], want)
-						}
-						if se := rm.SEOIM[n]; !near(res.StdErrors[i], se, 1e-5, 1e-7) {
-							t.Errorf("se_oim(%s) = %.10g, want %.10g", n, res.StdErrors[i], se)
-						}
+				}
+				for i, n := range res.ParamNames {
+					want, ok := rm.Estimates[n]
+					if !ok {
+						t.Errorf("parameter %s not in the reference (%s)", n, keys(rm.Estimates))
+						continue
 					}
-					checkStarts(t, res)
-				})
-			}
+					if !near(res.Estimates[i], want, 1e-5, 1e-7) {
+						t.Errorf("%s = %.10g, want %.10g", n, res.Estimates[i], want)
+					}
+					if se := rm.SEOIM[n]; !near(res.StdErrors[i], se, 1e-5, 1e-7) {
+						t.Errorf("se_oim(%s) = %.10g, want %.10g", n, res.StdErrors[i], se)
+					}
+				}
+				checkStarts(t, res)
+			})
 		}
 	}
 }

@@ -107,26 +107,21 @@ func ridgeData(n int) *Data {
 // same way (TestExamplePlanKeepStartsSameMaximum).
 func TestKeepStartsSameMaximum(t *testing.T) {
 	var tally startsTally
-	for _, name := range refNames {
-		rs := loadRef(t, name)
-		for _, rm := range rs.models {
-			if len(rm.Constrained) == 0 {
-				continue
+	for _, rec := range refRecords(t, true) {
+		name, rs, rm := rec.name, rec.rs, rec.rm
+		for _, opt := range []Options{{}, {ScreenAbove: -1}} {
+			label := fmt.Sprintf("%s/%s/screen-above-%d (%s)", name, rm.ID, opt.ScreenAbove, refSources[name])
+			d, m := rs.data(rm.Predictors), rm.modelOf(t)
+			on, err := Fit(d, m, opt)
+			if err != nil {
+				t.Fatalf("%s: %v", label, err)
 			}
-			for _, opt := range []Options{{}, {ScreenAbove: -1}} {
-				label := fmt.Sprintf("%s/%s/screen-above-%d (%s)", name, rm.ID, opt.ScreenAbove, refSources[name])
-				d, m := rs.data(rm.Predictors), rm.modelOf(t)
-				on, err := Fit(d, m, opt)
-				if err != nil {
-					t.Fatalf("%s: %v", label, err)
-				}
-				opt.KeepStarts = true
-				off, err := Fit(d, m, opt)
-				if err != nil {
-					t.Fatalf("%s: %v", label, err)
-				}
-				tally.compare(t, label, on, off)
+			opt.KeepStarts = true
+			off, err := Fit(d, m, opt)
+			if err != nil {
+				t.Fatalf("%s: %v", label, err)
 			}
+			tally.compare(t, label, on, off)
 		}
 	}
 	tally.check(t)
@@ -213,13 +208,8 @@ func TestOutOfReachStartsEndBelow(t *testing.T) {
 		m     Model
 	}
 	var jobs []job
-	for _, name := range refNames {
-		rs := loadRef(t, name)
-		for _, rm := range rs.models {
-			if len(rm.Constrained) > 0 {
-				jobs = append(jobs, job{name + "/" + rm.ID + " (" + refSources[name] + ")", rs.data(rm.Predictors), rm.modelOf(t)})
-			}
-		}
+	for _, r := range refRecords(t, true) {
+		jobs = append(jobs, job{r.name + "/" + r.rm.ID + " (" + refSources[r.name] + ")", r.rs.data(r.rm.Predictors), r.rm.modelOf(t)})
 	}
 	rd := ridgeData(20000)
 	for _, c := range []Comparison{Cumulative, Stage, Adjacent} {

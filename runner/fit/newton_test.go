@@ -74,24 +74,19 @@ func sameMaximum(t *testing.T, name string, a, b newtonState) {
 // of a standard error from the maximum, for every comparison: there it needs
 // one evaluation with second derivatives fewer.
 func TestScoreOnlyAfterSmallDecrement(t *testing.T) {
-	for _, name := range refNames {
-		rs := loadRef(t, name)
-		for _, rm := range rs.models {
-			if len(rm.Constrained) > 0 {
-				continue
-			}
-			m := rm.modelOf(t)
-			d := rs.data(rm.Predictors)
-			ly, err := newLayout(m, d.J, d.Predictors)
-			if err != nil {
-				t.Fatal(err)
-			}
-			ev := newProblem(d.design().compressed(), m, ly, 1).evaluator(false)
-			var ca, cb [3]int
-			a := newtonLoop(startValues(d, m, ly), 200, counting(ev, &ca))
-			b := newtonLoop(startValues(d, m, ly), 200, withInformation(ev, &cb))
-			sameMaximum(t, name+"/"+rm.ID, a, b)
+	for _, rec := range refRecords(t, false) {
+		name, rs, rm := rec.name, rec.rs, rec.rm
+		m := rm.modelOf(t)
+		d := rs.data(rm.Predictors)
+		ly, err := newLayout(m, d.J, d.Predictors)
+		if err != nil {
+			t.Fatal(err)
 		}
+		ev := newProblem(d.design().compressed(), m, ly, 1).evaluator(false)
+		var ca, cb [3]int
+		a := newtonLoop(startValues(d, m, ly), 200, counting(ev, &ca))
+		b := newtonLoop(startValues(d, m, ly), 200, withInformation(ev, &cb))
+		sameMaximum(t, name+"/"+rm.ID, a, b)
 	}
 	// Starts close to the maximum, as a constrained model's from the
 	// fit that nests it: half a hundredth of a standard error away in

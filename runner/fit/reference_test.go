@@ -24,18 +24,12 @@ func near(got, want, rel, abs float64) bool {
 // the three comparisons, other links, and the baseline-category form.
 // Sources: see refSources (each data set's published source).
 func TestReferenceUnconstrained(t *testing.T) {
-	for _, name := range refNames {
-		rs := loadRef(t, name)
-		for _, rm := range rs.models {
-			if len(rm.Constrained) > 0 {
-				continue
-			}
-			rm := rm
-			t.Run(name+"/"+rm.ID, func(t *testing.T) {
-				t.Logf("data: %s", refSources[name])
-				checkUnconstrained(t, rs, &rm, Options{})
-			})
-		}
+	for _, rec := range refRecords(t, false) {
+		name, rs, rm := rec.name, rec.rs, rec.rm
+		t.Run(name+"/"+rm.ID, func(t *testing.T) {
+			t.Logf("data: %s", refSources[name])
+			checkUnconstrained(t, rs, &rm, Options{})
+		})
 	}
 }
 
@@ -47,22 +41,16 @@ func TestReferenceUnconstrained(t *testing.T) {
 func TestReferenceSubsampleStage(t *testing.T) {
 	opt := Options{SubsampleAbove: 1}
 	staged := 0
-	for _, name := range refNames {
-		rs := loadRef(t, name)
-		for _, rm := range rs.models {
-			if len(rm.Constrained) > 0 {
-				continue
-			}
-			d := rs.data(rm.Predictors)
-			if d.design().compressed().subsample(d.J, opt.SubsampleAbove) != nil {
-				staged++
-			}
-			rm := rm
-			t.Run(name+"/"+rm.ID, func(t *testing.T) {
-				t.Logf("data: %s", refSources[name])
-				checkUnconstrained(t, rs, &rm, opt)
-			})
+	for _, rec := range refRecords(t, false) {
+		name, rs, rm := rec.name, rec.rs, rec.rm
+		d := rs.data(rm.Predictors)
+		if d.design().compressed().subsample(d.J, opt.SubsampleAbove) != nil {
+			staged++
 		}
+		t.Run(name+"/"+rm.ID, func(t *testing.T) {
+			t.Logf("data: %s", refSources[name])
+			checkUnconstrained(t, rs, &rm, opt)
+		})
 	}
 	if staged == 0 {
 		t.Fatal("no reference record takes the subsample stage")

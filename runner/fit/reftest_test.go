@@ -183,3 +183,27 @@ func contains(xs []string, x string) bool {
 	}
 	return false
 }
+
+// refRecord is one model record of a reference data set.
+type refRecord struct {
+	name string // the data set (refNames)
+	rs   *refSet
+	rm   refModel
+}
+
+// refRecords lists the model records of every reference data set, in
+// order: those with constrained predictors (the stereotype models
+// included) when constrained is true, the others when it is false.
+func refRecords(t testing.TB, constrained bool) []refRecord {
+	t.Helper()
+	var out []refRecord
+	for _, name := range refNames {
+		rs := loadRef(t, name)
+		for _, rm := range rs.models {
+			if (len(rm.Constrained) > 0) == constrained {
+				out = append(out, refRecord{name, rs, rm})
+			}
+		}
+	}
+	return out
+}
