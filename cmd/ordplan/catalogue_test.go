@@ -770,14 +770,30 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`allzero.csv: all 3 data rows were dropped for missing values or zero weight (w = 0: 3)`}},
 
 		// Output folders.
-		{id: "O1", name: "symlink planted in the output folder", args: []string{"run"}, plan: goodPlan, code: 0,
-			want: []string{"report: "},
+		{id: "O1", name: "symlink planted in the output folder", args: []string{"run"}, plan: goodPlan, code: 1,
+			want: []string{"O1-out: report.md is a symbolic link (to ", "precious.txt); ordplan writes its outputs as plain files and does not replace what it did not write: move it away, or give another --out"},
 			check: func(t *testing.T, dir, out, errs string) {
 				if b, _ := os.ReadFile(filepath.Join(dir, "precious.txt")); string(b) != "keep me\n" {
 					t.Errorf("the file behind the symlink was overwritten: %q", b)
 				}
-				if fi, err := os.Lstat(filepath.Join(dir, "O1-out", "report.md")); err != nil || !fi.Mode().IsRegular() {
-					t.Errorf("report.md is not a regular file: %v", err)
+				if fi, err := os.Lstat(filepath.Join(dir, "O1-out", "report.md")); err != nil || fi.Mode()&os.ModeSymlink == 0 {
+					t.Errorf("report.md is no longer the user's symlink: %v", err)
+				}
+				if _, err := os.Lstat(filepath.Join(dir, "O1-out", "run.json")); err == nil {
+					t.Errorf("the refused run wrote run.json")
+				}
+			}},
+		// A folder under a name known only from the results: found when the
+		// outputs are written, before any of them is renamed into place.
+		{id: "O1", name: "folder under an output's name", args: []string{"run"}, plan: goodPlan, code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				os.Remove(filepath.Join(dir, "O1-out", "report.md")) // the symlink of the item before
+				os.MkdirAll(filepath.Join(dir, "O1-out", "table-models-y.csv"), 0o755)
+			},
+			want: []string{"O1-out: table-models-y.csv is a folder; ordplan writes its outputs as plain files and does not replace what it did not write: move it away, or give another --out"},
+			check: func(t *testing.T, dir, out, errs string) {
+				if fi, err := os.Lstat(filepath.Join(dir, "O1-out", "report.html")); err == nil {
+					t.Errorf("the refused run wrote report.html: %v", fi.Mode())
 				}
 			}},
 		{id: "O2", name: "second run into a folder being written", args: []string{"run"}, plan: goodPlan, code: 1,

@@ -66,7 +66,8 @@ func (l *outputLock) Unlock() {
 // writeAll writes every file into dir all or nothing: each goes to a new
 // temporary file in dir (created exclusively, so no symlink is followed),
 // is synced, and only when all are written are they renamed into place
-// (a rename replaces a symlink planted under the name, never its target).
+// (entries under the names that are not regular files were refused
+// before, notPlainFiles).
 // On a failure before the renames the folder keeps what it had. names
 // gives the order of the renames; the last one marks a complete run.
 func writeAll(dir string, names []string, files map[string][]byte) error {
@@ -142,6 +143,10 @@ func claimOutput(dir, command string, fixed []string) (*outputLock, error) {
 		}
 		return nil, fmt.Errorf("output folder %s: it holds the outputs of ordplan %s (its run.json says so); ordplan %s does not replace or remove them: give another --out, or move them away", dir, prev, command)
 	}
+	if err := notPlainFiles(dir, slices.Concat(fixed, []string{recordFile})); err != nil {
+		lock.Unlock()
+		return nil, err
+	}
 	if mine := usersFiles(dir, slices.Concat(fixed, []string{recordFile}), nil); len(mine) > 0 {
 		lock.Unlock()
 		return nil, usersFilesError(dir, mine)
@@ -192,6 +197,9 @@ func writeOutputs(dir string, files map[string][]byte, record func(map[string][]
 	}
 	all[recordFile] = b
 	names = append(names, recordFile)
+	if err := notPlainFiles(dir, names); err != nil {
+		return err
+	}
 	if mine := usersFiles(dir, names, files); len(mine) > 0 {
 		return usersFilesError(dir, mine)
 	}
@@ -206,6 +214,39 @@ func writeOutputs(dir string, files map[string][]byte, record func(map[string][]
 		os.Remove(filepath.Join(dir, n))
 	}
 	return nil
+}
+
+// notPlainFiles refuses entries in dir under an output's name that are not
+// regular files (O1): a symlink, a folder, a device. ordplan writes only
+// regular files, so such an entry is the user's own; replacing a symlink
+// would lose the link (the rename replaces it, never its target), and a
+// folder would stop the renames half way. Checked before any file is
+// written, so the folder keeps what it had.
+func notPlainFiles(dir string, names []string) error {
+	var odd []string
+	for _, n := range names {
+		fi, err := os.Lstat(filepath.Join(dir, n))
+		if err != nil || fi.Mode().IsRegular() {
+			continue
+		}
+		kind := "not a regular file"
+		switch {
+		case fi.Mode()&os.ModeSymlink != 0:
+			kind = "a symbolic link"
+			if target, err := os.Readlink(filepath.Join(dir, n)); err == nil {
+				kind += " (to " + target + ")"
+			}
+		case fi.IsDir():
+			kind = "a folder"
+		}
+		odd = append(odd, n+" is "+kind)
+	}
+	if len(odd) == 0 {
+		return nil
+	}
+	sort.Strings(odd)
+	return fmt.Errorf("output folder %s: %s; ordplan writes its outputs as plain files and does not replace what it did not write: move %s away, or give another --out",
+		dir, joinNames(odd), map[bool]string{true: "it", false: "them"}[len(odd) == 1])
 }
 
 // usersFilesError is the refusal to replace the user's files: O4 where
@@ -265,8 +306,8 @@ func previousOutputs(dir string) map[string]string {
 
 // previousRecord reads the run.json in dir: the SHA-256 of each output it
 // records, and whether a regular file there is not such a record (the
-// user's own run.json). A symlink there counts as absent: the rename
-// replaces it, never its target.
+// user's own run.json). A symlink there counts as absent (notPlainFiles
+// refuses it before anything is written).
 func previousRecord(dir string) (outputs map[string]string, foreign bool) {
 	path := filepath.Join(dir, recordFile)
 	fi, err := os.Lstat(path)
@@ -327,7 +368,7 @@ func usersFiles(dir string, names []string, files map[string][]byte) []string {
 		}
 		fi, err := os.Lstat(filepath.Join(dir, n))
 		if err != nil || !fi.Mode().IsRegular() {
-			continue // absent, or a symlink the rename replaces (not its target)
+			continue // absent, or not a regular file (refused by notPlainFiles)
 		}
 		c, err := os.ReadFile(filepath.Join(dir, n))
 		if err != nil {

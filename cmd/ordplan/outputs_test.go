@@ -53,7 +53,8 @@ inference:
 }
 
 // Outcomes "safety.2" and "safety_2" write distinct predictions files; a
-// symlink planted in the output folder is replaced, never written through;
+// symlink planted in the output folder is refused, never written through
+// nor replaced (O1), and the run goes ahead once it is moved away;
 // a second run into a folder being written is refused with a message.
 func TestOutputsSafe(t *testing.T) {
 	dir := t.TempDir()
@@ -65,14 +66,18 @@ func TestOutputsSafe(t *testing.T) {
 	if err := os.Symlink(outside, filepath.Join(out, "report.md")); err != nil {
 		t.Fatal(err)
 	}
-	if o, e, code := runCLI("run", p, "--out", out, "--quiet"); code != 0 {
-		t.Fatalf("exit %d: %s %s", code, o, e)
+	if o, e, code := runCLI("run", p, "--out", out, "--quiet"); code != exitFail || !strings.Contains(e, "report.md is a symbolic link (to "+outside+")") {
+		t.Fatalf("a planted symlink: exit %d: %s %s", code, o, e)
 	}
 	if b, _ := os.ReadFile(outside); string(b) != "keep me\n" {
 		t.Errorf("the file behind a planted symlink was overwritten: %q", b)
 	}
-	if fi, err := os.Lstat(filepath.Join(out, "report.md")); err != nil || !fi.Mode().IsRegular() {
-		t.Errorf("report.md is not a regular file: %v", err)
+	if fi, err := os.Lstat(filepath.Join(out, "report.md")); err != nil || fi.Mode()&os.ModeSymlink == 0 {
+		t.Errorf("report.md is no longer the user's symlink: %v", err)
+	}
+	os.Remove(filepath.Join(out, "report.md"))
+	if o, e, code := runCLI("run", p, "--out", out, "--quiet"); code != 0 {
+		t.Fatalf("exit %d: %s %s", code, o, e)
 	}
 	matches, _ := filepath.Glob(filepath.Join(out, "predictions-*.csv"))
 	if len(matches) != 2 {
