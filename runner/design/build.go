@@ -311,7 +311,7 @@ func (d *Design) buildCategorical(t *Term, src Source, v, w []float64, fz *TermR
 			t.code[l] = row
 		}
 	}
-	t.Columns = categoricalNames(t.Name, t.Kept, ref, c.Coding)
+	t.Columns = categoricalNames(t.Name, c.Levels, t.Kept, ref, c.Coding)
 	return nil
 }
 

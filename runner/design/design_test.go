@@ -317,3 +317,44 @@ func TestSourceScalesAreMeanSD(t *testing.T) {
 		}
 	}
 }
+
+// Levels that differ only in characters a column name cannot hold (a
+// hyphen against a space, words in another script) get distinct column
+// names, the same with and without data, and a level dropped for having
+// no row changes no other level's name.
+func TestLevelNamesAreDistinct(t *testing.T) {
+	levels := []string{"main road", "cul-de-sac", "cul de sac", "北部", "南部", "cul_de_sac_3", "x"}
+	raw := []float64{0, 1, 2, 3, 4, 5, 6, 0, 1}
+	spec := Spec{Sources: []Source{{Name: "s", Cat: &Categorical{Levels: levels}}}, Terms: []TermSpec{{Name: "s", Source: "s"}, {Name: "v", Source: "v"}}}
+	spec.Sources = append(spec.Sources, Source{Name: "v"})
+	rows := make([]float64, 0, 2*len(raw))
+	for i, x := range raw {
+		rows = append(rows, x, float64(i))
+	}
+	d, err := Build(spec, rows, len(raw), nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := "s.cul_de_sac s.cul_de_sac_3_2 s.__ s.___5 s.cul_de_sac_3 s.x"
+	if got := strings.Join(d.Columns[:6], " "); got != want {
+		t.Errorf("columns %q, want %q", got, want)
+	}
+	names, err := Names(spec)
+	if err != nil || strings.Join(names[0], " ") != want {
+		t.Errorf("names without data %v (%v), want %q", names, err, want)
+	}
+	// "cul de sac" has no row and is dropped: the others keep their names
+	spec.Sources[0].Cat.Unobserved = UnobservedDrop
+	for i := range raw {
+		if raw[i] == 2 {
+			rows[2*i] = 1
+		}
+	}
+	d, err = Build(spec, rows, len(raw), nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got, want := strings.Join(d.Columns[:5], " "), "s.cul_de_sac s.__ s.___5 s.cul_de_sac_3 s.x"; got != want {
+		t.Errorf("with a level dropped: columns %q, want %q", got, want)
+	}
+}

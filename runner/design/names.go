@@ -30,7 +30,7 @@ func Names(spec Spec) ([][]string, error) {
 				return nil, &Error{Key: ts.Key, Msg: fmt.Sprintf("column %q is not among the columns read", ts.Source)}
 			}
 			if c := spec.Sources[s].Cat; c != nil {
-				out[i] = categoricalNames(ts.Name, c.Levels, referenceOf(c), c.Coding)
+				out[i] = categoricalNames(ts.Name, c.Levels, c.Levels, referenceOf(c), c.Coding)
 			} else {
 				out[i] = numericNames(ts.Name, ts.Transform, max(len(ts.Knots), len(ts.Quantiles)))
 			}
@@ -67,15 +67,46 @@ func numericNames(name string, tr Transform, knots int) []string {
 }
 
 // categoricalNames names the columns of a categorical term coding the
-// levels kept: one per level other than the reference (treatment, sum),
-// or other than the first (successive).
-func categoricalNames(name string, kept []string, ref, coding string) []string {
+// levels kept (of the declared levels): one per level other than the
+// reference (treatment, sum), or other than the first (successive).
+func categoricalNames(name string, levels, kept []string, ref, coding string) []string {
+	names := levelNames(levels)
 	var out []string
 	for j, l := range kept {
 		if (coding == Successive && j == 0) || (coding != Successive && l == ref) {
 			continue
 		}
-		out = append(out, name+"."+LevelName(l))
+		out = append(out, name+"."+names[l])
+	}
+	return out
+}
+
+// levelNames gives each declared level its part of a column name:
+// LevelName, made distinct. Levels that differ only in characters a name
+// cannot hold ("cul-de-sac" and "cul de sac", or two words in another
+// script) would share one; a later one gets its position among the levels
+// appended ("cul_de_sac_4"), and "_2", "_3", ... after that should that
+// name be taken too. The names depend on the declared levels alone, so a
+// level dropped for having no row changes no other level's name.
+func levelNames(levels []string) map[string]string {
+	base := make([]string, len(levels))
+	taken := map[string]bool{}
+	for i, l := range levels {
+		base[i] = LevelName(l)
+		taken[base[i]] = true
+	}
+	out := make(map[string]string, len(levels))
+	used := map[string]bool{}
+	for i, l := range levels {
+		n := base[i]
+		if used[n] {
+			n = fmt.Sprintf("%s_%d", base[i], i+1)
+			for k := 2; used[n] || taken[n]; k++ {
+				n = fmt.Sprintf("%s_%d_%d", base[i], i+1, k)
+			}
+		}
+		used[n] = true
+		out[l] = n
 	}
 	return out
 }
