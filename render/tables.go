@@ -250,7 +250,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	// Marginal effects.
 	if len(or.Marginal) > 0 {
 		rows = nil
-		head := []string{"kind", "predictor", "category", "discrete_change", "effect", "std_error", "z", "p", "low_" + lv, "high_" + lv}
+		head := []string{"kind", "predictor", "change", "category", "discrete_change", "effect", "std_error", "z", "p", "low_" + lv, "high_" + lv}
 		about := "marginal effects of the chosen model with " + lv + "% intervals"
 		if or.Imputed != nil {
 			head = append(head, "df", "fmi")
@@ -258,7 +258,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		}
 		for _, set := range or.Marginal {
 			for e, me := range set.Effects {
-				row := []string{set.Kind, me.Predictor, me.Category, strconv.FormatBool(me.Discrete), csvNum(me.Effect), csvNum(me.SE), csvNum(me.Z), csvNum(me.P), csvNum(me.Low), csvNum(me.High)}
+				row := []string{set.Kind, me.Predictor, me.Change, me.Category, strconv.FormatBool(me.Discrete), csvNum(me.Effect), csvNum(me.SE), csvNum(me.Z), csvNum(me.P), csvNum(me.Low), csvNum(me.High)}
 				if or.Imputed != nil {
 					row = append(row, "", "")
 					if e < len(set.Pooling) {

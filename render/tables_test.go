@@ -37,6 +37,26 @@ func TestTableFiles(t *testing.T) {
 			t.Errorf("%s: %d lines", name, len(recs))
 		}
 	}
+	// Each marginal effect says what changes: a categorical predictor has
+	// a row per level and category, told apart by the change alone.
+	me, _ := csv.NewReader(bytes.NewReader(files["table-marginal-effects-safety.csv"])).ReadAll()
+	if len(me) == 0 || strings.Join(me[0][:5], ",") != "kind,predictor,change,category,discrete_change" {
+		t.Errorf("marginal effects header %v", me[0])
+	}
+	seen, levels := map[string]bool{}, map[string]bool{}
+	for _, r := range me[1:] {
+		key := r[0] + "|" + r[1] + "|" + r[2] + "|" + r[3]
+		if seen[key] {
+			t.Errorf("marginal effects: two rows %s", key)
+		}
+		seen[key] = true
+		if r[1] == "street_type" {
+			levels[r[2]] = true
+		}
+	}
+	if !levels["residential to through_road"] || !levels["residential to cul_de_sac"] || len(levels) != 2 {
+		t.Errorf("marginal effects of street_type: changes %v, want residential to each other level", levels)
+	}
 	recs, _ := csv.NewReader(bytes.NewReader(files["table-estimates-safety.csv"])).ReadAll()
 	ch := res.Outcomes[0].Chosen.Result
 	found := 0
