@@ -67,6 +67,7 @@ func parse(src []byte, path string, withData bool) (*Plan, error) {
 		sortErrors(d.errs)
 		return nil, d.errs
 	}
+	p.Unedited = d.unedited(src, root)
 	return p, nil
 }
 

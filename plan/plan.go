@@ -36,6 +36,10 @@ type Plan struct {
 	Assumptions *Assumptions // expected data, for rehearse and power (optional)
 	Dictionary  []Entry      // what each used column holds (optional; when given, every used column)
 	Deviations  []Deviation  // why the plan departs from its frozen form; not in the canonical form
+	// Unedited are the places still marked by `ordplan init` (EditMarker):
+	// guesses to confirm, placeholders to replace. Not in the canonical
+	// form; freeze refuses a plan that has any, check and run warn.
+	Unedited []*Error
 }
 
 // Data says where the observations are and how to read them.

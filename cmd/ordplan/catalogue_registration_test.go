@@ -61,6 +61,16 @@ func registrationItems() []badInput {
 					t.Errorf("the old lock changed: %v %+v", err, f)
 				}
 			}},
+		{id: "R6", name: "freezing a plan still marked by ordplan init", args: []string{"freeze"}, code: 1, lines: true,
+			plan: "title: EDIT the title of the report\n" + edit("  - column: y\n", "  - column: y   # <- outcome (guessed: EDIT)\n"),
+			want: []string{`R6.yaml:1:8: title: still holds the placeholder of ordplan init ("EDIT the title of the report"): replace it`,
+				`R6.yaml:6:40: outcomes[0].column: still marked by ordplan init ("<- outcome (guessed: EDIT)"): check the line, then delete the marker`,
+				"R6.yaml still has 2 place(s) marked EDIT by ordplan init", "check each place, delete its marker, then freeze"},
+			check: func(t *testing.T, dir, out, errs string) {
+				if _, err := os.Stat(filepath.Join(dir, "R6.lock.json")); !os.IsNotExist(err) {
+					t.Errorf("a lock was written for a plan still marked by init: %v", err)
+				}
+			}},
 		{id: "R4", name: "deviation without a reason", args: []string{"check"}, code: 1,
 			plan: goodPlan + "deviations:\n  - key: rules[1].choose.by\n    reason: \"  \"\n",
 			want: []string{"deviations[0].reason: the reason is empty; say why the registered plan was changed"}},

@@ -39,6 +39,9 @@ func cmdFreeze(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, err)
 		return exitFail
 	}
+	if refuseUnedited(p, stderr) {
+		return exitFail
+	}
 	f := lock.New(p, strings.TrimSpace(*reg), time.Now(), runner.Version)
 	path, kept, err := lock.Write(f, planPath, *replace)
 	if err != nil {

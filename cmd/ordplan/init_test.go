@@ -190,3 +190,69 @@ func TestInitGuessesScaleOutcome(t *testing.T) {
 		}
 	}
 }
+
+// Every place ordplan init marks EDIT (a guess from the data or a
+// placeholder) is listed by check as a warning, at its line, while the
+// skeleton stays a valid plan; freeze refuses the plan until the markers
+// are gone, and then freezes it.
+func TestInitMarkersBlockFreezing(t *testing.T) {
+	dir := t.TempDir()
+	csv := "id,rating,dose,smoker,site\np1,good,1.5,0,north\np2,poor,0.5,1,south\np3,fair,2.0,0,north\np4,good,,1,east\np5,poor,1.0,0,south\n"
+	dataPath := filepath.Join(dir, "d.csv")
+	os.WriteFile(dataPath, []byte(csv), 0o644)
+	planPath := filepath.Join(dir, "p.yaml")
+	if out, errs, code := runCLI("init", planPath, "--data", dataPath); code != 0 {
+		t.Fatalf("init: %d %s %s", code, out, errs)
+	}
+	text, _ := os.ReadFile(planPath)
+	var marked []int // lines of the skeleton carrying the marker, but its instruction
+	for i, l := range strings.Split(string(text), "\n") {
+		if strings.Contains(l, "EDIT") && !strings.Contains(l, "marked EDIT") {
+			marked = append(marked, i+1)
+		}
+	}
+	if len(marked) < 4 {
+		t.Fatalf("only %d marked lines in\n%s", len(marked), text)
+	}
+	out, errs, code := runCLI("check", planPath)
+	if code != 0 || !strings.Contains(out, "plan is valid") || !strings.Contains(out, strconv.Itoa(len(marked))+" place(s) still marked EDIT") {
+		t.Fatalf("check: %d\n%s\n%s", code, out, errs)
+	}
+	for _, line := range marked {
+		if !strings.Contains(errs, "warning: "+planPath+":"+strconv.Itoa(line)+":") {
+			t.Errorf("check does not warn of line %d:\n%s", line, errs)
+		}
+	}
+	if !strings.Contains(errs, `outcomes[0].categories: still marked by ordplan init ("EDIT: put them in order, lowest first")`) {
+		t.Errorf("the categories' order is not named:\n%s", errs)
+	}
+	if _, errs, code := runCLI("freeze", planPath); code != 1 || !strings.Contains(errs, "marked EDIT by ordplan init") {
+		t.Fatalf("freeze of the skeleton: %d %s", code, errs)
+	}
+	if _, err := os.Stat(strings.TrimSuffix(planPath, ".yaml") + ".lock.json"); !os.IsNotExist(err) {
+		t.Fatalf("a lock was written: %v", err)
+	}
+	// The analyst orders the categories, names the study and deletes the
+	// markers: freeze goes on, check no longer warns.
+	s := strings.Replace(string(text), "title: EDIT the title of the report", "title: Dose and rating", 1)
+	if !strings.Contains(s, "categories: [good, poor, fair]") {
+		t.Fatalf("the categories as found are not in\n%s", s)
+	}
+	s = strings.Replace(s, "categories: [good, poor, fair]", "categories: [poor, fair, good]", 1)
+	var kept []string
+	for _, l := range strings.Split(s, "\n") {
+		if i := strings.Index(l, "EDIT"); i >= 0 && !strings.Contains(l, "marked EDIT") {
+			if j := strings.LastIndex(l[:i], "#"); j >= 0 {
+				l = strings.TrimRight(l[:j], " ")
+			}
+		}
+		kept = append(kept, l)
+	}
+	os.WriteFile(planPath, []byte(strings.Join(kept, "\n")), 0o644)
+	if out, errs, code := runCLI("check", planPath); code != 0 || strings.Contains(errs, "warning") || strings.Contains(out, "still marked") {
+		t.Fatalf("check after editing: %d\n%s\n%s", code, out, errs)
+	}
+	if out, errs, code := runCLI("freeze", planPath); code != 0 {
+		t.Fatalf("freeze after editing: %d %s %s", code, out, errs)
+	}
+}

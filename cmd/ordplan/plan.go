@@ -62,6 +62,10 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 		what = "plan is valid (data file not read)"
 	}
 	fmt.Fprintf(stdout, "%s: %s (%d outcome(s), %d predictors, sha256 %s)\n", p.Path, what, len(p.Outcomes), len(p.Predictors), p.Hash)
+	if len(p.Unedited) > 0 {
+		warnUnedited(p, stderr)
+		fmt.Fprintf(stdout, "note: %d place(s) still marked %s by ordplan init (listed on standard error): check each and delete its marker; ordplan freeze refuses the plan until then\n", len(p.Unedited), plan.EditMarker)
+	}
 	fmt.Fprintln(stdout, "The rules, in the order they will be applied to the models of each outcome:")
 	for _, s := range runner.DescribeRules(p) {
 		fmt.Fprintln(stdout, "  "+s)
@@ -96,6 +100,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, err)
 		return exitFail
 	}
+	warnUnedited(p, stderr)
 	reg, code := registration(p, *allow, stderr)
 	if code != exitOK {
 		return code
@@ -202,4 +207,27 @@ func commandLine(args []string) string {
 		out[i] = a
 	}
 	return strings.Join(out, " ")
+}
+
+// warnUnedited prints, on stderr, each place of p still marked by
+// `ordplan init` (plan.EditMarker); the commands that read a plan other
+// than freeze (which refuses it: refuseUnedited) go on.
+func warnUnedited(p *plan.Plan, stderr io.Writer) {
+	for _, e := range p.Unedited {
+		fmt.Fprintf(stderr, "warning: %v\n", e)
+	}
+}
+
+// refuseUnedited is freeze's answer to a plan still marked by `ordplan
+// init`: every place listed and the reason; false when there is none.
+func refuseUnedited(p *plan.Plan, stderr io.Writer) bool {
+	if len(p.Unedited) == 0 {
+		return false
+	}
+	for _, e := range p.Unedited {
+		fmt.Fprintln(stderr, e)
+	}
+	fmt.Fprintf(stderr, "ordplan freeze: %s still has %d place(s) marked %s by ordplan init (guesses from the data such as the order of the categories, or placeholders); a registered plan states the analyst's own choices: check each place, delete its marker, then freeze\n",
+		p.Path, len(p.Unedited), plan.EditMarker)
+	return true
 }

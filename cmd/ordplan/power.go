@@ -62,6 +62,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, err)
 		return exitFail
 	}
+	warnUnedited(p, stderr)
 	dir := *out
 	if dir == "" {
 		base := filepath.Base(planPath)

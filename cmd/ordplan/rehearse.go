@@ -43,6 +43,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, err)
 		return exitFail
 	}
+	warnUnedited(p, stderr)
 	sim, err := simulate.New(p)
 	if err != nil {
 		return fail(stderr, err)
