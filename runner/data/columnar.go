@@ -27,7 +27,8 @@ type columnRecords struct {
 	file   *parquet.File
 	mark   byte // the dialect's decimal mark, for the texts of numbers
 	header []string
-	rows   int64 // rows in the file, as its metadata says
+	texts  []columnText // by column: the text of a value with a logical type (nil: cellText)
+	rows   int64        // rows in the file, as its metadata says
 	size   int64 // bytes of the file
 	rd     *parquet.Reader
 	batch  []parquet.Row // rows read and not yet used: batch[at:]
@@ -58,6 +59,8 @@ func openParquet(raw []byte) (rec *columnRecords, msg string) {
 			return nil, fmt.Sprintf("column %s is nested; only flat Parquet files (one value per column and row) are read", quoteCell(strings.Join(path, ".")))
 		}
 		rec.header = append(rec.header, path[0])
+		leaf, _ := f.Schema().Lookup(path...)
+		rec.texts = append(rec.texts, logicalText(leaf.Node.Type()))
 	}
 	rec.file, rec.mark = f, '.'
 	rec.rd = parquet.NewReader(f)
@@ -127,9 +130,34 @@ func (c *columnRecords) cells(row parquet.Row) ([]string, error) {
 		if v.Column() != len(cells) {
 			return nil, &Error{Line: c.next + 1, Msg: "row has a repeated or nested value; only flat Parquet files are read"}
 		}
-		cells = append(cells, cellText(v, c.mark))
+		cells = append(cells, c.text(len(cells), v))
 	}
 	return cells, nil
+}
+
+// text is the text of a value of column ci: through the column's logical
+// type when it has one that changes what the stored value means, else
+// cellText.
+func (c *columnRecords) text(ci int, v parquet.Value) string {
+	if ci < len(c.texts) && c.texts[ci] != nil && !v.IsNull() {
+		return c.texts[ci](v, c.mark)
+	}
+	return cellText(v, c.mark)
+}
+
+// typedSlow sends the used columns with a logical type (c.texts) the
+// general way: their stored values are not the numbers or texts they
+// mean.
+func (c *columnRecords) typedSlow(p *fastPlan) {
+	if p == nil {
+		return
+	}
+	for ci := range p.fields {
+		if ci < len(c.texts) && c.texts[ci] != nil && p.fields[ci].kind != fastSkip {
+			p.fields[ci].typed = true
+			p.plain = false
+		}
+	}
 }
 
 // cellText writes a value as the CSV reader would see it, numbers with
@@ -198,6 +226,7 @@ func (r *reader) columnRows(c *columnRecords) (*Dataset, error) {
 		}
 	}
 	fast := r.newFastPlan(t)
+	c.typedSlow(fast)
 	for {
 		row, err := c.row()
 		if err == io.EOF {
@@ -247,7 +276,7 @@ func (r *reader) valueRow(p *fastPlan, t *rowTally, row parquet.Row) (cells, boo
 // valueCell reads one used value of a row the fast way into the row (and
 // its predictor values xs); false when the row needs the general way.
 func (r *reader) valueCell(p *fastPlan, f *fastField, v *parquet.Value, out *cells, xs []float64) bool {
-	if v.IsNull() {
+	if v.IsNull() || f.typed {
 		return false
 	}
 	var ok bool
@@ -410,6 +439,7 @@ func (r *reader) parallelRows(c *columnRecords) (d *Dataset, done bool, err erro
 		chunks[i].t.codes = a.codes[u.first:u.first:(u.first + n)]
 	}
 	fast := r.newFastPlan(t)
+	c.typedSlow(fast)
 	if f := forEachUntil(len(units), func(i int) error {
 		chunks[i].err = r.readUnit(c, units[i], used, &chunks[i], fast)
 		return chunks[i].err
@@ -593,7 +623,7 @@ func (r *reader) readUnit(c *columnRecords, u columnUnit, used []int, ch *chunk,
 				if xk := cols[k].doubles; xk != nil {
 					rec[ci] = fmtNum(xk[j], c.mark) // cellText of the double
 				} else {
-					rec[ci] = cellText(vals[k][j], c.mark)
+					rec[ci] = c.text(ci, vals[k][j])
 				}
 			}
 			if err := cr.record(ch.t, ch.d, rec); err != nil {

@@ -36,6 +36,10 @@ type fastField struct {
 	// check: some missing-value marker of the column reads as a valid
 	// cell, so a valid cell must also be checked against the markers.
 	check bool
+	// typed: a Parquet column with a logical type (a decimal, an unsigned
+	// integer, a date or time), read only the general way, through its
+	// values' texts (columnRecords.text).
+	typed bool
 }
 
 // fastPlan says how the fast way reads each field of a line.

@@ -102,6 +102,23 @@ func FuzzReadParquet(f *testing.F) {
 	f.Add(good)
 	f.Add(good[:len(good)/2])
 	f.Add([]byte("PAR1PAR1"))
+	// a decimal, an unsigned integer and a date (their logical types'
+	// texts, logical.go)
+	b.Reset()
+	dw := parquet.NewGenericWriter[struct {
+		Y int64  `parquet:"y"`
+		A int32  `parquet:"a,decimal(2:9)"`
+		U uint64 `parquet:"u"`
+		D int32  `parquet:"d,date"`
+	}](&b)
+	dw.Write([]struct {
+		Y int64  `parquet:"y"`
+		A int32  `parquet:"a,decimal(2:9)"`
+		U uint64 `parquet:"u"`
+		D int32  `parquet:"d,date"`
+	}{{1, 50, 1 << 63, 3}, {2, -100, 2, -4}, {3, 200, 7, 19000}})
+	dw.Close()
+	f.Add(bytes.Clone(b.Bytes()))
 	opt := Options{Outcome: "y", Predictors: []string{"a"}}
 	f.Fuzz(func(t *testing.T, in []byte) {
 		if len(in) > 1<<16 {

@@ -1,0 +1,138 @@
+package data
+
+import (
+	"math/big"
+	"strconv"
+	"strings"
+	"time"
+
+	"github.com/parquet-go/parquet-go"
+	"github.com/parquet-go/parquet-go/format"
+)
+
+// columnText writes a non-null value of a Parquet column whose logical
+// type changes what the stored value means, numbers with the decimal
+// mark given.
+type columnText func(v parquet.Value, mark byte) string
+
+// logicalText is the text of the values of a column of type t, or nil
+// when the stored value is what it means (cellText): a decimal is its
+// unscaled integer with the point put back (exactly, as the file means
+// it: 12345 at scale 2 is 123.45), an unsigned integer is read unsigned,
+// a date, time or timestamp (and a legacy INT96 timestamp) is written as
+// such, a text a number cannot be read from, so that such a column used
+// as a number is refused with its value shown, as the same data written
+// as CSV would be.
+func logicalText(t parquet.Type) columnText {
+	if t.Kind() == parquet.Int96 {
+		return int96Text
+	}
+	lt := t.LogicalType()
+	if lt == nil {
+		return nil
+	}
+	switch l := lt.Value.(type) {
+	case *format.DecimalType:
+		scale := int(l.Scale)
+		return func(v parquet.Value, mark byte) string { return decimalText(unscaled(v), scale, mark) }
+	case *format.IntType:
+		if l.IsSigned {
+			return nil
+		}
+		return func(v parquet.Value, _ byte) string {
+			if v.Kind() == parquet.Int32 {
+				return strconv.FormatUint(uint64(uint32(v.Int32())), 10)
+			}
+			return strconv.FormatUint(v.Uint64(), 10)
+		}
+	case *format.DateType:
+		return func(v parquet.Value, _ byte) string {
+			return time.Unix(int64(v.Int32())*86400, 0).UTC().Format("2006-01-02")
+		}
+	case *format.TimeType:
+		unit := timeUnit(&l.Unit)
+		return func(v parquet.Value, _ byte) string {
+			return time.Unix(0, storedInt(v)*unit).UTC().Format("15:04:05.999999999")
+		}
+	case *format.TimestampType:
+		unit, utc := timeUnit(&l.Unit), l.IsAdjustedToUTC
+		return func(v parquet.Value, _ byte) string {
+			n, per := storedInt(v), 1e9/unit
+			sec, rest := n/per, n%per
+			if rest < 0 {
+				sec, rest = sec-1, rest+per
+			}
+			return timestampText(sec, rest*unit, utc)
+		}
+	}
+	return nil
+}
+
+// storedInt is the value of an INT32 or INT64.
+func storedInt(v parquet.Value) int64 {
+	if v.Kind() == parquet.Int32 {
+		return int64(v.Int32())
+	}
+	return v.Int64()
+}
+
+// timeUnit is the length of a time unit in nanoseconds.
+func timeUnit(u *format.TimeUnit) int64 {
+	if u.Value == nil {
+		return 1
+	}
+	return int64(u.Value.Duration())
+}
+
+// timestampText writes a time as seconds and nanoseconds since 1970,
+// with a Z when it is in UTC.
+func timestampText(sec, nsec int64, utc bool) string {
+	s := time.Unix(sec, nsec).UTC().Format("2006-01-02T15:04:05.999999999")
+	if utc {
+		s += "Z"
+	}
+	return s
+}
+
+// int96Text writes a legacy INT96 timestamp (nanoseconds of the day, then
+// the Julian day number).
+func int96Text(v parquet.Value, _ byte) string {
+	w := v.Int96()
+	nanos := int64(uint64(w[0]) | uint64(w[1])<<32)
+	days := int64(w[2]) - 2440588 // the Julian day of 1970-01-01
+	return timestampText(days*86400, nanos, true)
+}
+
+// unscaled is a decimal's stored integer: an INT32 or INT64, or a
+// big-endian two's complement byte array.
+func unscaled(v parquet.Value) *big.Int {
+	switch v.Kind() {
+	case parquet.Int32:
+		return big.NewInt(int64(v.Int32()))
+	case parquet.Int64:
+		return big.NewInt(v.Int64())
+	}
+	b := v.ByteArray()
+	n := new(big.Int).SetBytes(b)
+	if len(b) > 0 && b[0]&0x80 != 0 {
+		n.Sub(n, new(big.Int).Lsh(big.NewInt(1), uint(8*len(b))))
+	}
+	return n
+}
+
+// decimalText writes n / 10^scale exactly, with the decimal mark given.
+func decimalText(n *big.Int, scale int, mark byte) string {
+	digits := new(big.Int).Abs(n).String()
+	sign := ""
+	if n.Sign() < 0 {
+		sign = "-"
+	}
+	if scale <= 0 {
+		return sign + digits + strings.Repeat("0", -scale)
+	}
+	if len(digits) <= scale {
+		digits = strings.Repeat("0", scale-len(digits)+1) + digits
+	}
+	cut := len(digits) - scale
+	return sign + digits[:cut] + string(mark) + digits[cut:]
+}
