@@ -24,6 +24,8 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"github.com/parquet-go/parquet-go"
 )
 
 // badInput is one catalogue item.
@@ -217,7 +219,7 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		"gz.csv":     gz.Bytes(), "u16.csv": u16(true), "u16nobom.csv": u16(false),
 		"cr.csv": []byte(strings.ReplaceAll(csv, "\n", "\r")), "two.csv": []byte(two.String()),
 		"bad.xlsx": append([]byte("PK\x03\x04"), bytes.Repeat([]byte{7}, 200)...), "notzip.xlsx": []byte(csv),
-		"bad.parquet": []byte("PAR1garbagegarbagePAR1"), "notpq.parquet": []byte(csv),
+		"bad.parquet": []byte("PAR1garbagegarbagePAR1"), "notpq.parquet": []byte(csv), "dates.parquet": datesParquet(t),
 		"book.xlsx":    toWorkbook(t, []byte(strings.ReplaceAll(csv, "safety", "y"))),
 		"parts/p1.csv": []byte(csv), "parts/p2.csv": []byte(csv), "otherpart.csv": []byte("y,a,z\n1,0.5,1\n"),
 		"emptypart.csv": []byte(strings.SplitAfter(csv, "\n")[0]),
@@ -241,6 +243,26 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		t.Fatal(err)
 	}
 	t.Cleanup(lock.Unlock)
+}
+
+// datesParquet is a Parquet file of an outcome y, a number a and a date
+// column day (DATE: days since 1970-01-01).
+func datesParquet(t *testing.T) []byte {
+	t.Helper()
+	type row struct {
+		Y   int64   `parquet:"y"`
+		A   float64 `parquet:"a"`
+		Day int32   `parquet:"day,date"`
+	}
+	var b bytes.Buffer
+	w := parquet.NewGenericWriter[row](&b)
+	if _, err := w.Write([]row{{1, 0.5, 19000}, {2, -1, 19001}, {1, 2, 19002}, {2, 0, 19003}}); err != nil {
+		t.Fatal(err)
+	}
+	if err := w.Close(); err != nil {
+		t.Fatal(err)
+	}
+	return b.Bytes()
 }
 
 func fitArgs(file string, extra ...string) []string {
@@ -584,6 +606,8 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`book.xlsx: sheet "survey" has `, ` rows, so no header in row 900 (data.header_row, or --header-row)`}},
 		{id: "X5", name: "malformed Parquet file", args: fitArgs(d("bad.parquet"), "--predictors", "a,b"), code: 1,
 			want: []string{`bad.parquet: is not a readable Parquet file (parquet file footer of 1701273954 bytes does not fit in a file of 22 bytes)`}},
+		{id: "X15", name: "a Parquet date column used as a number", args: fitArgs(d("dates.parquet"), "--predictors", "a,day"), code: 1,
+			want: []string{`dates.parquet:2: column "day": value "2022-01-08" is not a number`}},
 		{id: "X6", name: "CSV text named .parquet", args: fitArgs(d("notpq.parquet"), "--predictors", "a,b"), code: 1,
 			want: []string{`notpq.parquet: is not a Parquet file (it does not start and end with PAR1): convert it to Parquet, or give the file a .csv name if it is CSV text`}},
 		{id: "X7", name: "--sheet or --header-row with a file that is not a workbook", args: fitArgs(d("semi.csv"), "--predictors", "a,b", "--sheet", "survey"), code: 2,
