@@ -29,7 +29,7 @@ type columnRecords struct {
 	header []string
 	texts  []columnText // by column: the text of a value with a logical type (nil: cellText)
 	rows   int64        // rows in the file, as its metadata says
-	size   int64 // bytes of the file
+	size   int64        // bytes of the file
 	rd     *parquet.Reader
 	batch  []parquet.Row // rows read and not yet used: batch[at:]
 	at     int
