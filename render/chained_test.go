@@ -1,10 +1,13 @@
 package render
 
 import (
+	"encoding/json"
 	"fmt"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"regexp"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -61,4 +64,79 @@ rules:
 	files := renderSource(t, dir, src, 2)
 	want := "The imputation models hold main effects only (each column linear in the others), while the analysis has the interaction x1x2 and the nonlinear term x2q (polynomial); as these terms were computed from values imputed without them, their estimates can be biased toward zero (toward no interaction and no curvature)."
 	hasAll(t, "report.md", string(files["report.md"]), want)
+}
+
+// TestChainedReportDescribesObservedData: on data imputed by this run the
+// outcome's counts and the predictors by outcome category are those of the
+// original file's observed values (tabulated here from the file the test
+// wrote), with the rows whose outcome is missing counted apart, never the
+// values of one imputed set; decisions.json records the same counts.
+func TestChainedReportDescribesObservedData(t *testing.T) {
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(8, 3))
+	var b strings.Builder
+	b.WriteString("y,x1,x2\n")
+	counts := map[int]int{}
+	missingY, n := 0, 0
+	sumX2, nX2 := 0.0, 0
+	for i := 0; i < 240; i++ {
+		y, x1, x2 := testsurvey.Report.Row(rng)
+		ys, x2s := fmt.Sprint(y), fmt.Sprintf("%.5f", x2)
+		if rng.Float64() < 0.3 {
+			ys = ""
+			missingY++
+		} else {
+			counts[y]++
+			n++
+		}
+		if rng.Float64() < 0.2 {
+			x2s = ""
+		} else if ys != "" {
+			v, _ := strconv.ParseFloat(x2s, 64)
+			sumX2 += v
+			nX2++
+		}
+		fmt.Fprintf(&b, "%s,%.5f,%s\n", ys, x1, x2s)
+	}
+	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
+	src := `version: 1
+title: imputed here
+seed: 5
+data: {file: d.csv, missing: impute, imputation: {sets: 3, iterations: 2}}
+outcomes: [{column: y}]
+predictors: [x1, x2]
+models: {approaches: [cumulative], effects: [parallel]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: bic}
+`
+	files := renderSource(t, dir, src, 2)
+	md := string(files["report.md"])
+	want := []string{
+		fmt.Sprintf("describe the observed values of the original data `%s` (%d observations with the outcome observed, %d with it missing), not an imputed set", filepath.Join(dir, "d.csv"), n, missingY),
+		"Outcome categories, observed values of the original data",
+		fmt.Sprintf("| (missing, imputed) | %d |  |", missingY),
+	}
+	for y := 1; y <= 3; y++ {
+		want = append(want, fmt.Sprintf("| %d | %d | %.1f%% |", y, counts[y], 100*float64(counts[y])/float64(n)))
+	}
+	hasAll(t, "report.md", md, want...)
+	// x2's mean over the rows where it and the outcome are observed, in
+	// the last column (All) of the predictors by outcome category.
+	if m := regexp.MustCompile(`(?m)^\| x2 \|.* ([-0-9.]+) \([0-9.]+\) \|$`).FindStringSubmatch(md); m == nil || m[1] != fmt.Sprintf("%.3f", sumX2/float64(nX2)) {
+		t.Errorf("x2 over all observed rows: got %v, want mean %.3f", m, sumX2/float64(nX2))
+	}
+	var dec struct {
+		Outcomes []struct {
+			Counts []float64 `json:"counts"`
+		} `json:"outcomes"`
+	}
+	if err := json.Unmarshal(files["decisions.json"], &dec); err != nil || len(dec.Outcomes) != 1 {
+		t.Fatalf("decisions.json: %v", err)
+	}
+	for y := 1; y <= 3; y++ {
+		if got := dec.Outcomes[0].Counts[y-1]; got != float64(counts[y]) {
+			t.Errorf("decisions.json counts[%d] = %g, want the observed %d", y-1, got, counts[y])
+		}
+	}
 }

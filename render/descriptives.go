@@ -26,11 +26,14 @@ type descriptive struct {
 // describe summarizes every raw predictor column of ds by outcome
 // category, weighted by the frequency weights. levels gives the levels of
 // a categorical column (its cells hold the level index), nil for a
-// numeric one.
+// numeric one. A row whose outcome is missing (-1, the original data of an
+// imputed run) is left out, and so is a missing predictor value (NaN) from
+// that predictor's summary: each predictor over the rows where it and the
+// outcome are observed.
 func describe(ds *data.Dataset, levels [][]string) []descriptive {
 	K, J := ds.K, len(ds.Categories)
 	var out []descriptive
-	one := func(label string, counts bool, value func(i int) float64) {
+	one := func(label string, k int, counts bool, value func(i int) float64) {
 		s := descriptive{Label: label, Counts: counts, N: make([]float64, J+1), Mean: make([]float64, J+1),
 			SD: make([]float64, J+1), Ones: make([]float64, J+1)}
 		m2 := make([]float64, J+1)
@@ -39,7 +42,7 @@ func describe(ds *data.Dataset, levels [][]string) []descriptive {
 			if ds.Weights != nil {
 				w = ds.Weights[i]
 			}
-			if w == 0 {
+			if w == 0 || ds.Y[i] < 0 || math.IsNaN(ds.X[i*K+k]) {
 				continue
 			}
 			x := value(i)
@@ -66,7 +69,7 @@ func describe(ds *data.Dataset, levels [][]string) []descriptive {
 		name := ds.Predictors[k]
 		if k < len(levels) && levels[k] != nil {
 			for l, lv := range levels[k] {
-				one(name+" = "+lv, true, func(i int) float64 {
+				one(name+" = "+lv, k, true, func(i int) float64 {
 					if int(ds.X[i*K+k]) == l {
 						return 1
 					}
@@ -77,12 +80,12 @@ func describe(ds *data.Dataset, levels [][]string) []descriptive {
 		}
 		binary := true
 		for i := 0; i < ds.N; i++ {
-			if x := ds.X[i*K+k]; x != 0 && x != 1 {
+			if x := ds.X[i*K+k]; x != 0 && x != 1 && !math.IsNaN(x) {
 				binary = false
 				break
 			}
 		}
-		one(name, binary, func(i int) float64 { return ds.X[i*K+k] })
+		one(name, k, binary, func(i int) float64 { return ds.X[i*K+k] })
 	}
 	return out
 }
@@ -105,11 +108,11 @@ func sourceLevels(or *runner.OutcomeResult) [][]string {
 // writeDescriptives writes the predictors by outcome category and the
 // missing-value pattern of the used columns.
 func writeDescriptives(d *doc, or *runner.OutcomeResult) {
-	ds := describe(or.Data, sourceLevels(or))
+	ds := describe(describedData(or), sourceLevels(or))
 	if len(ds) > 0 {
 		lv := or.Data.Categories
 		weighted := ""
-		if or.Data.Weights != nil {
+		if describedData(or).Weights != nil {
 			weighted = " Counts, means and SDs are weighted by the frequency weights."
 		}
 		d.p("Each predictor in each outcome category: mean (SD) for a numeric predictor; for a 0/1 predictor and for each level of a categorical one, the number of observations with 1 (with that level) and their share of the category.%s", weighted)
@@ -133,6 +136,15 @@ func writeDescriptives(d *doc, or *runner.OutcomeResult) {
 		d.captioned("Predictors by outcome category").table(head, rows)
 	}
 	writeMissing(d, or)
+}
+
+// describedData is the data the descriptive tables summarize: on imputed
+// data the original file's observed values, otherwise the rows used.
+func describedData(or *runner.OutcomeResult) *data.Dataset {
+	if or.Observed != nil {
+		return or.Observed
+	}
+	return or.Data
 }
 
 // sharePct writes a share of rows as a percentage with one decimal.

@@ -43,10 +43,40 @@ func writeData(d *doc, or *runner.OutcomeResult) {
 	d.p("Outcome column `%s`, %d categories in this order: %s. %d rows read, %d used; %s. Observations (sum of weights): %s.",
 		or.Outcome.Column, len(ds.Categories), strings.Join(ds.Categories, " < "), ds.RowsRead, ds.N, ds.DropSummary(), numfmt.Count(ds.NObs()))
 	var rows [][]string
-	for j, l := range ds.Categories {
-		rows = append(rows, []string{l, numfmt.Num(ds.Counts[j]), numfmt.Fixed(100*ds.Counts[j]/ds.NObs(), 1) + "%"})
+	if ob := or.Observed; ob != nil {
+		// On imputed data: the observed values of the original file, not
+		// one imputed set's.
+		total, missing := 0.0, 0.0
+		for i, y := range ob.Y {
+			w := 1.0
+			if ob.Weights != nil {
+				w = ob.Weights[i]
+			}
+			if y < 0 {
+				missing += w
+			} else {
+				total += w
+			}
+		}
+		d.p("The counts below, and the predictors by outcome category, describe the observed values of the original data `%s` (%s observations with the outcome observed, %s with it missing), not an imputed set; shares are of the observed outcomes.",
+			ob.File, numfmt.Count(total), numfmt.Count(missing))
+		for j, l := range ob.Categories {
+			share := "0.0%"
+			if total > 0 {
+				share = numfmt.Fixed(100*ob.Counts[j]/total, 1) + "%"
+			}
+			rows = append(rows, []string{l, numfmt.Num(ob.Counts[j]), share})
+		}
+		if missing > 0 {
+			rows = append(rows, []string{"(missing, imputed)", numfmt.Num(missing), ""})
+		}
+		d.captioned("Outcome categories, observed values of the original data").table([]string{"Category", "Count", "Share"}, rows)
+	} else {
+		for j, l := range ds.Categories {
+			rows = append(rows, []string{l, numfmt.Num(ds.Counts[j]), numfmt.Fixed(100*ds.Counts[j]/ds.NObs(), 1) + "%"})
+		}
+		d.captioned("Outcome categories").table([]string{"Category", "Count", "Share"}, rows)
 	}
-	d.captioned("Outcome categories").table([]string{"Category", "Count", "Share"}, rows)
 	if terms := or.TermDescriptions(); len(terms) > 0 {
 		d.p("Predictor terms: how each term of the plan became columns of the models. Constants computed from the rows used (means, standard deviations, quantile knots, orthogonal-polynomial coefficients) are frozen and reused for predictions on new rows; decisions.json records them. A term's columns share one effect structure (parallel, nonparallel or constrained) and are tested together.")
 		var rows [][]string

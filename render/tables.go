@@ -77,7 +77,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 
 	// Predictors by outcome category.
 	var rows [][]string
-	for _, s := range describe(or.Data, sourceLevels(or)) {
+	for _, s := range describe(describedData(or), sourceLevels(or)) {
 		for c := range s.N {
 			cat := "all"
 			if c < len(or.Data.Categories) {
@@ -92,7 +92,11 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 			rows = append(rows, row)
 		}
 	}
-	add("descriptives", "each predictor (each level of a categorical one) by outcome category", []string{"predictor", "category", "n", "count", "share", "mean", "sd"}, rows)
+	about := "each predictor (each level of a categorical one) by outcome category"
+	if or.Observed != nil {
+		about += ", over the observed values of the original data (each predictor where it and the outcome are observed)"
+	}
+	add("descriptives", about, []string{"predictor", "category", "n", "count", "share", "mean", "sd"}, rows)
 
 	// Missing values.
 	if mt := or.Data.Missing; mt != nil {

@@ -66,6 +66,7 @@ func chainedSets(a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Data
 		return nil, nil, nil, errNothingToImpute
 	}
 	var notes []string
+	observed := ds
 	if ds.Weights != nil {
 		rows := ds.N
 		if ds, err = expandCounts(ds); err != nil {
@@ -92,7 +93,7 @@ func chainedSets(a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Data
 	if err != nil {
 		return nil, nil, nil, fmt.Errorf("%s: %v (outcome %q)", a.Source, err, r.Outcome)
 	}
-	run := &ImputedRun{M: im.Sets, Source: "chained", Files: []string{a.DataFile}, Rows: ds.N, Sets: fds, Data: sets,
+	run := &ImputedRun{M: im.Sets, Source: "chained", Files: []string{a.DataFile}, Rows: ds.N, Sets: fds, Data: sets, observed: observed,
 		Chained: &ChainedRecord{Outcome: r.Outcome, Method: "chained equations", Sets: im.Sets, Iterations: im.Iterations, Seed: im.Seed,
 			Stream: stream, Donors: chainedDonors, RowsIncomplete: ds.Incomplete, Visits: res.Visits, Models: res.Models, Trace: res.Trace,
 			Notes: append(notes, res.Notes...), ConvergenceTable: im.ConvergenceTable}}

@@ -31,6 +31,9 @@ type ImputedRun struct {
 	Fits [][]*FitEntry   `json:"-"`
 	// Chained says how the program imputed the sets (Source "chained").
 	Chained *ChainedRecord `json:"-"`
+	// observed is the original data with its incomplete rows kept (a
+	// missing outcome -1, a missing predictor NaN): OutcomeResult.Observed.
+	observed *data.Dataset
 	// brant is the Brant construction of every set, made once.
 	brant *pooledBrant
 	// obs is the number of observations of the complete-data degrees of
@@ -529,14 +532,17 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 	run.obs = completeObs(run.Sets[0], an.Errors.Sampling)
 	ds := *sets[0]
 	if !an.Imputes() {
-		// The original file: its missing values are described in the report.
-		orig, err := data.LoadFiles(an.Paths(), r.Options)
+		// The original file: its missing values and observed values are
+		// described in the report.
+		dopt := r.Options
+		dopt.Refuse, dopt.KeepIncomplete = false, true
+		orig, err := data.LoadFiles(an.Paths(), dopt)
 		if err != nil {
 			return nil, fmt.Errorf("%s (plan %s, outcome %q)", err, an.Source, oc.Column)
 		}
-		ds.Missing = orig.Missing
+		ds.Missing, run.observed = orig.Missing, orig
 	}
-	or := &OutcomeResult{Outcome: oc, Data: &ds, FitData: run.Sets[0], Design: dz, Terms: termsOf(dz), dataOptions: r.Options, Imputed: run}
+	or := &OutcomeResult{Outcome: oc, Data: &ds, Observed: run.observed, FitData: run.Sets[0], Design: dz, Terms: termsOf(dz), dataOptions: r.Options, Imputed: run}
 	or.Notes = append(or.Notes, dz.Notes...)
 	if run.Chained != nil {
 		for _, n := range run.Chained.Notes {

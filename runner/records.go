@@ -48,8 +48,10 @@ type DataRef struct {
 
 // OutcomeDecisions is one outcome's part of decisions.json.
 type OutcomeDecisions struct {
-	Outcome    string             `json:"outcome"`
-	Categories []string           `json:"categories"`
+	Outcome    string   `json:"outcome"`
+	Categories []string `json:"categories"`
+	// Counts per category: of the rows used; on imputed data, of the
+	// outcome's observed values in the original file (not an imputed set).
 	Counts     []float64          `json:"counts"`
 	RowsRead   int                `json:"rows_read"`
 	RowsUsed   int                `json:"rows_used"`
@@ -192,6 +194,9 @@ func BuildDecisions(r *Result) *Decisions {
 		od := OutcomeDecisions{Outcome: or.Outcome.Column, Categories: or.Data.Categories, Counts: or.Data.Counts,
 			RowsRead: or.Data.RowsRead, RowsUsed: or.Data.N, Dropped: nonNilDrops(or.Data.Dropped), NObs: or.Data.NObs(),
 			Choice: or.Choice, Fallback: or.Fallback, Notes: nonNil(or.Notes), Final: map[string]Verdict{}}
+		if or.Observed != nil {
+			od.Counts = or.Observed.Counts
+		}
 		if or.Design != nil && !or.Design.Trivial() {
 			od.Terms = or.Design.Records()
 		}

@@ -72,9 +72,15 @@ type OutcomeResult struct {
 	NewRows     *NewRows      // predictions for the plan's new rows
 
 	// Imputed is set when the outcome was analysed on multiply imputed
-	// data: Data then describes the original file (its missing values),
-	// FitData is imputed set 1, and every fit is pooled over the sets.
+	// data: Data is then imputed set 1 with the original file's table of
+	// missing values, FitData its fit input, and every fit is pooled over
+	// the sets.
 	Imputed *ImputedRun
+	// Observed is, on imputed data, the original file as read with its
+	// incomplete rows kept (a missing outcome -1 in Y, a missing predictor
+	// NaN in X): the report's counts and descriptives are of its observed
+	// values, never of one imputed set. Nil otherwise.
+	Observed *data.Dataset `json:"-"`
 }
 
 // FreeSet is the set of terms allowed to vary in partial and
