@@ -2,6 +2,7 @@ package render
 
 import (
 	"fmt"
+	"slices"
 	"strings"
 
 	"gonum.org/v1/gonum/stat/distuv"
@@ -128,38 +129,53 @@ func stageDirection(r *runner.Result) string {
 	return ""
 }
 
-func writeLimits(d *doc, r *runner.Result) {
-	rows := "Information criteria and tests compare models on the same rows; rows with a missing value were dropped before any model was fitted."
+// rowsSentence says on which rows the models were compared and what that
+// assumes of the missing values: imputed sets (missing at random), rows
+// dropped (a complete-case analysis), or no missing value at all.
+func rowsSentence(r *runner.Result) string {
+	dropped := false
 	for _, or := range r.Outcomes {
 		if or.Imputed != nil {
-			rows = "Information criteria and tests compare models on the same rows: every model was fitted on each complete imputed set. Pooled standard errors and tests assume that the values are missing at random given the columns of the imputation models, and include the uncertainty due to the missing values only as far as the imputation model is right."
+			return "Information criteria and tests compare models on the same rows: every model was fitted on each complete imputed set. Pooled standard errors and tests assume that the values are missing at random given the columns of the imputation models, and include the uncertainty due to the missing values only as far as the imputation model is right."
+		}
+		if mt := or.Data.Missing; mt != nil && len(mt.Patterns) > 0 {
+			dropped = true
 		}
 	}
+	if dropped {
+		return "Information criteria and tests compare models on the same rows; rows with a missing value in a used column were dropped before any model was fitted (a complete-case analysis; the Data section counts them). Its estimates can be biased unless being incomplete is unrelated to the outcome given the predictors, and they use none of the information in the dropped rows."
+	}
+	return "Information criteria and tests compare models on the same rows; no used column had a missing value in the rows analysed."
+}
+
+func writeLimits(d *doc, r *runner.Result) {
 	d.h(2, "Assumptions and limits")
-	d.list([]string{
+	items := []string{
 		"The models describe how the outcome is associated with the predictors in these data. They do not show that a predictor causes a change in the outcome; neither do the predicted probabilities or the marginal effects, which are summaries of the same fitted association.",
 		"Each model assumes that observations are independent given the predictors, that the link function is right, and that the predictors enter as the plan's terms state them (linearly, or through the stated coding of categorical predictors, transformations, polynomials, splines and interactions); a relation of another shape is not found by the model.",
 		"Tests of the parallel-lines assumption reject easily in large samples: a small p-value can reflect a difference between boundaries too small to matter in practice. Look at the effects across boundaries before giving up a simpler model.",
 		"Cumulative partial and nonparallel models can predict negative category probabilities for some covariate values (their cumulative probabilities cross). The number of rows of the data where this happens is shown for every model, and predictions on the grid of the focus predictor are checked too; predictions outside the observed covariate range are more exposed.",
 		startsSentence(r),
-		rows,
+		rowsSentence(r),
 		"The chosen model's standard errors, p-values and intervals (of its estimates, predicted probabilities and marginal effects) treat it as fixed in advance, not as the result of the selection made by the rules, and of any stepwise choice of partial effects, on the same data: they leave out the uncertainty of that selection, so intervals tend to be too narrow and p-values too small.",
 		"Standard errors of predicted probabilities and marginal effects use the delta method: they are first-order approximations.",
-	})
+	}
+	d.list(slices.DeleteFunc(items, func(s string) bool { return s == "" }))
 }
 
 // startsSentence says how the searches from several starts were run:
 // every start to its end (models.run_every_start), or with starts
 // abandoned early, screened first on an approximation when the data have
-// more rows than the fits' screening threshold.
+// more rows than the fits' screening threshold; "" when the plan has no
+// constrained or stereotype models (the plan key is refused without them).
 func startsSentence(r *runner.Result) string {
-	s := "Constrained (common-factor) and stereotype models can have several local maxima; ordplan fits them from several starting points and keeps the best."
 	mo := r.Plan.Models
+	if !mo.HasEffects(fit.ConstrainedEffects) && !mo.HasEffects(fit.StereotypeEffects) {
+		return ""
+	}
+	s := "Constrained (common-factor) and stereotype models can have several local maxima; ordplan fits them from several starting points and keeps the best."
 	if mo.RunEveryStart {
 		return s + " With `models.run_every_start` every start was run to its end, none abandoned early."
-	}
-	if !mo.HasEffects(fit.ConstrainedEffects) && !mo.HasEffects(fit.StereotypeEffects) {
-		return s // this plan has none, and the plan key is refused without them
 	}
 	opt := fit.Options{}
 	if r.Analysis != nil {

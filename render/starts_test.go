@@ -6,6 +6,7 @@ import (
 
 	"ordplan/plan"
 	"ordplan/runner"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 
@@ -31,8 +32,8 @@ func TestStartsSentence(t *testing.T) {
 	// A plan without searches from several starts is not told to set the key.
 	none := result(false, above+1)
 	none.Plan.Models.Effects = []fit.Structure{fit.ParallelEffects}
-	if s := startsSentence(none); strings.Contains(s, "run_every_start") || strings.Contains(s, "abandoned") {
-		t.Errorf("without constrained or stereotype models: %q", s)
+	if s := startsSentence(none); s != "" {
+		t.Errorf("without constrained or stereotype models the report speaks of their starts: %q", s)
 	}
 	for _, c := range cases {
 		s := startsSentence(result(c.every, c.rows))
@@ -45,6 +46,35 @@ func TestStartsSentence(t *testing.T) {
 			if strings.Contains(s, w) {
 				t.Errorf("every %v, %d rows: %q holds %q", c.every, c.rows, s, w)
 			}
+		}
+	}
+}
+
+// The report's sentence on the rows compared says what the run did with
+// missing values, and what that assumes: dropped rows (a complete-case
+// analysis), imputed sets (missing at random), or none missing.
+func TestRowsSentence(t *testing.T) {
+	result := func(mt *data.MissingTable, imputed bool) *runner.Result {
+		or := &runner.OutcomeResult{Data: &data.Dataset{Missing: mt}}
+		if imputed {
+			or.Imputed = &runner.ImputedRun{M: 5}
+		}
+		return &runner.Result{Outcomes: []*runner.OutcomeResult{or}}
+	}
+	dropped := &data.MissingTable{Columns: []string{"y", "x"}, Patterns: []data.MissingPattern{{Missing: []bool{false, true}, Rows: 3}}, Rows: 10}
+	complete := &data.MissingTable{Columns: []string{"y", "x"}, Rows: 10}
+	for _, c := range []struct {
+		r          *runner.Result
+		want, lack string
+	}{
+		{result(dropped, false), "a complete-case analysis", "missing at random"},
+		{result(complete, false), "no used column had a missing value", "dropped"},
+		{result(nil, false), "no used column had a missing value", "dropped"},
+		{result(dropped, true), "missing at random given the columns of the imputation models", "complete-case"},
+	} {
+		s := rowsSentence(c.r)
+		if !strings.Contains(s, c.want) || strings.Contains(s, c.lack) {
+			t.Errorf("%q: want %q, not %q", s, c.want, c.lack)
 		}
 	}
 }
