@@ -386,9 +386,17 @@ func (d *decoder) decodeSubset(n *yaml.Node) []data.Condition {
 			}
 			given++
 			c.Op = o.op
-			if o.op == "in" || o.op == "not_in" {
+			switch t := deref(v); {
+			case o.op == "in" || o.op == "not_in":
 				c.Values, _ = d.readList(v, m.at(o.key), d.token)
-			} else {
+			case (o.op == "==" || o.op == "!=") && t != nil && t.Kind == yaml.ScalarNode && t.ShortTag() == "!!str":
+				// A level or code compared as a number: say which key compares text.
+				list := "one_of"
+				if o.op == "!=" {
+					list = "none_of"
+				}
+				d.errorf(t, m.at(o.key), "want a number, got string %s: %s compares numbers; to compare the text, write %s: [%s]", quote(t.Value), o.key, list, t.Value)
+			default:
 				c.Number, _ = d.number(v, m.at(o.key))
 			}
 		}

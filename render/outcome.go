@@ -142,7 +142,7 @@ func writeModelTable(d *doc, or *runner.OutcomeResult) {
 		d.p("%s", s)
 	}
 	for _, n := range or.Notes {
-		d.p("%s.", n)
+		d.p("%s.", strings.TrimSuffix(n, "."))
 	}
 	if c := criteriaChart(d, or); c != nil {
 		d.charts("Chart in report.html: AIC and BIC of every candidate model.", c)

@@ -543,7 +543,7 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 		ds.Missing, run.observed = orig.Missing, orig
 	}
 	or := &OutcomeResult{Outcome: oc, Data: &ds, Observed: run.observed, FitData: run.Sets[0], Design: dz, Terms: termsOf(dz), dataOptions: r.Options, Imputed: run}
-	or.Notes = append(or.Notes, dz.Notes...)
+	or.Notes = append(append(or.Notes, ds.Notes...), dz.Notes...)
 	if run.Chained != nil {
 		for _, n := range run.Chained.Notes {
 			or.Notes = append(or.Notes, "Imputation: "+n)

@@ -284,7 +284,13 @@ func (a *Analysis) CheckDesign(r Reading, d *fit.Data) error {
 // a subset column.
 func (r Reading) keyOf(err error) string {
 	var de *data.Error
-	if !errors.As(err, &de) || de.Column == "" {
+	if !errors.As(err, &de) {
+		return ""
+	}
+	if de.Key != "" {
+		return ", plan key " + de.Key
+	}
+	if de.Column == "" {
 		return ""
 	}
 	if k, ok := r.ColumnKeys[de.Column]; ok {

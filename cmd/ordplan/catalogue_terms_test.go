@@ -114,5 +114,19 @@ func termItems(dir string) []badInput {
 		{id: "T10", name: "an empty term name (ordplan fit |as=)", setup: writeTermsData, code: 1,
 			args: fitArgs(cat, "--predictors", "site|levels=north/east/south|as=,x"),
 			want: []string{`--predictors: predictor 1 ("site|levels=north/east/south|as="): |as= names the term: give a name (as=name)`}},
+		{id: "T11", name: "a subset value written otherwise than the data write it", args: []string{"run"}, setup: writeTermsData,
+			plan: termsEdit("predictors:", "subset:\n  - {column: site, one_of: [north, East]}\npredictors:"), code: 1,
+			want: []string{`cat.csv: column "site": the subset condition site in {north, East} names the value "East", which no row of the column holds and which is not a declared level; the column holds "east", written differently: a misspelt value keeps or drops other rows than meant, write it as the data do (plan T11.yaml, outcome "y", plan key subset[0])`}},
+		{id: "T12", name: "a subset value that no row has and that is like none of the column's values", args: []string{"run"}, setup: writeTermsData,
+			plan: termsEdit("predictors:", "subset:\n  - {column: site, none_of: [west]}\npredictors:"), code: 0,
+			check: func(t *testing.T, dir, out, errs string) {
+				rep, err := os.ReadFile(filepath.Join(dir, "T12-out", "report.md"))
+				if err != nil || !strings.Contains(string(rep), `The subset condition site not in {west} (subset[0]) names "west", which no row of column site holds: it keeps or drops no row.`+"\n") {
+					t.Errorf("the value that matched no row is not reported: %v", err)
+				}
+			}},
+		{id: "T13", name: "a level compared by equal_to (a number comparison)", args: []string{"check"}, setup: writeTermsData,
+			plan: termsEdit("predictors:", "subset:\n  - {column: site, equal_to: north}\npredictors:"), code: 1,
+			want: []string{`T13.yaml:7:30: subset[0].equal_to: want a number, got string "north": equal_to compares numbers; to compare the text, write one_of: [north]`}},
 	}
 }

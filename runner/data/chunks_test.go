@@ -2,6 +2,7 @@ package data
 
 import (
 	"bytes"
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -183,7 +184,10 @@ func TestChunkedReadsLikeRecords(t *testing.T) {
 			opt.Offset, opt.Cluster = "o", "g"
 			opt.ColumnMissing = map[string][]string{"a": {"-9"}, "o": {"0"}}
 		case 3:
-			opt.Keep = []Condition{{Column: "o", Op: ">", Number: -1}, {Column: "c", Op: "in", Values: []string{"p", "q"}}}
+			// a value no row has: a note ("zz"), or refused as another
+			// spelling of a value the rows have ("Q")
+			vals := [][]string{{"p", "q"}, {"p", "q", "zz"}, {"p", "Q"}}[trial%3]
+			opt.Keep = []Condition{{Column: "o", Op: ">", Number: -1}, {Column: "c", Op: "in", Values: vals, Key: "subset[1]"}}
 		case 4:
 			opt.Refuse = trial%2 == 0
 			opt.KeepIncomplete = trial%3 == 0
@@ -696,5 +700,23 @@ func TestPow10Mantissas(t *testing.T) {
 		if got := pow10Mantissas[q-pow10Min]; m.BitLen() != 128 || got[0] != lo.Uint64() || got[1] != hi.Uint64() {
 			t.Fatalf("1e%d: table %x %x, math/big %x", q, got[1], got[0], &m)
 		}
+	}
+}
+
+// A one_of or none_of value that no row holds: noted when it is like no
+// value of the column, refused (with the plan key) when it is one of them
+// written otherwise.
+func TestSubsetValuesNoRowHolds(t *testing.T) {
+	in := "y,a,c\n1,0.5,north\n2,1.5,east\n1,2.5,east\n2,0.1,north\n"
+	opt := Options{Outcome: "y", Predictors: []string{"a"}, Keep: []Condition{{Column: "c", Op: "not_in", Values: []string{"west"}, Key: "subset[0]"}}}
+	d, err := Read(strings.NewReader(in), "t.csv", opt)
+	if err != nil || len(d.Notes) != 1 || d.Notes[0] != `The subset condition c not in {west} (subset[0]) names "west", which no row of column c holds: it keeps or drops no row` {
+		t.Errorf("a value no row holds: %v %q", err, d.Notes)
+	}
+	opt.Keep[0].Values = []string{"North "}
+	_, err = Read(strings.NewReader(in), "t.csv", opt)
+	var de *Error
+	if !errors.As(err, &de) || de.Key != "subset[0]" || !strings.Contains(err.Error(), `names the value "North ", which no row of the column holds and which is not a declared level; the column holds "north", written differently`) {
+		t.Errorf("a value written otherwise: %v", err)
 	}
 }

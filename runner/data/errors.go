@@ -17,6 +17,7 @@ type Error struct {
 	Column string // column name; "" if none
 	Msg    string // what is wrong
 	Err    error  // underlying error, if any (for errors.Is / errors.As)
+	Key    string // the plan key behind the problem, when the reader knows it (not printed here)
 }
 
 func (e *Error) Error() string {

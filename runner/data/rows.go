@@ -1,11 +1,13 @@
 package data
 
 import (
+	"fmt"
 	"io"
 	"math"
 	"slices"
 	"strconv"
 	"strings"
+	"unicode"
 )
 
 // rows reads the data rows and builds the data set, in phases: the
@@ -129,6 +131,7 @@ type rowTally struct {
 	pat           []byte                    // the current row's pattern
 	xs            []float64                 // the current row's predictor values
 	clusters      map[string]string         // one copy of each cluster id kept
+	listSeen      []map[string]bool         // per one_of/none_of condition: the values its column holds (nil: other conditions)
 }
 
 // cells is one parsed row.
@@ -161,8 +164,12 @@ func (r *reader) newRowTally(K int) *rowTally {
 	for i, l := range opt.Categories {
 		t.labels[l] = i
 	}
+	t.listSeen = make([]map[string]bool, len(opt.Keep))
 	for i, k := range opt.Keep {
 		t.condCol[i] = slices.IndexFunc(r.cols, func(c usedCol) bool { return c.name == k.Column })
+		if k.Op == "in" || k.Op == "not_in" {
+			t.listSeen[i] = map[string]bool{}
+		}
 	}
 	for col, lv := range opt.PredictorLevels {
 		t.levelIndex[col] = map[string]int{}
@@ -177,6 +184,13 @@ func (r *reader) newRowTally(K int) *rowTally {
 // outsideSubset returns the first subset condition the row fails (-1: it
 // is inside the subset).
 func (r *reader) outsideSubset(t *rowTally, rec []string) (int, error) {
+	for i, seen := range t.listSeen {
+		if seen != nil && len(seen) < maxListValues {
+			if v := strings.TrimSpace(rec[r.cols[t.condCol[i]].index]); !seen[v] {
+				seen[strings.Clone(v)] = true
+			}
+		}
+	}
 	for i, k := range r.opt.Keep {
 		c := r.cols[t.condCol[i]]
 		cell := strings.TrimSpace(rec[c.index])
@@ -369,6 +383,9 @@ func (r *reader) countDrops(t *rowTally, d *Dataset) error {
 			d.RowsDropped += n
 			d.RowsOutside += n
 		}
+	}
+	if err := r.unknownListValues(t, d); err != nil {
+		return err
 	}
 	if d.N == 0 && d.RowsOutside == d.RowsRead {
 		first := ""
@@ -596,4 +613,66 @@ func missingPatterns(cols []usedCol, patterns map[string]int) *MissingTable {
 		t.Patterns = append(t.Patterns, mp)
 	}
 	return t
+}
+
+// maxListValues bounds the distinct values of a column kept to check the
+// values of a one_of or none_of condition: a column with more is not a
+// set of levels, and its values are not checked.
+const maxListValues = 1000
+
+// unknownListValues looks at each value of a one_of or none_of condition
+// that no row of its column holds (missing or not, inside the subset or
+// not) and that is not a declared level of the column. When it is another
+// value written differently (case, spaces, punctuation: "Cul-de-sac" for
+// "cul_de_sac"), it is refused, because the misspelt value keeps or drops
+// other rows than meant; otherwise (a value listed in case it occurs) the
+// data set gets a note that it matched no row.
+func (r *reader) unknownListValues(t *rowTally, d *Dataset) error {
+	for i, seen := range t.listSeen {
+		if seen == nil || len(seen) >= maxListValues {
+			continue
+		}
+		k := r.opt.Keep[i]
+		declared := r.opt.PredictorLevels[k.Column]
+		for _, v := range k.Values {
+			if seen[v] || slices.Contains(declared, v) {
+				continue
+			}
+			var near []string
+			for h := range seen {
+				if h != "" && !r.missing[h] && looseText(h) == looseText(v) {
+					near = append(near, h)
+				}
+			}
+			for _, h := range declared {
+				if looseText(h) == looseText(v) && !slices.Contains(near, h) {
+					near = append(near, h)
+				}
+			}
+			if len(near) == 0 {
+				d.Notes = append(d.Notes, fmt.Sprintf("The subset condition %s (%s) names %s, which no row of column %s holds: it keeps or drops no row", k.String(), k.Key, strconv.Quote(v), k.Column))
+				continue
+			}
+			slices.Sort(near)
+			for j := range near {
+				near[j] = strconv.Quote(near[j])
+			}
+			e := r.fail(0, k.Column, "the subset condition %s names the value %s, which no row of the column holds and which is not a declared level; the column holds %s, written differently: a misspelt value keeps or drops other rows than meant, write it as the data do", k.String(), strconv.Quote(v), strings.Join(near, " and "))
+			e.Key = k.Key
+			return e
+		}
+	}
+	return nil
+}
+
+// looseText is s in lower case with only its letters and digits: two
+// spellings of one value ("Cul-de-sac", "cul_de_sac") compare equal.
+func looseText(s string) string {
+	var b strings.Builder
+	for _, c := range strings.ToLower(s) {
+		if unicode.IsLetter(c) || unicode.IsDigit(c) {
+			b.WriteRune(c)
+		}
+	}
+	return b.String()
 }
