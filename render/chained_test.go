@@ -57,6 +57,13 @@ rules:
 	if strings.Contains(md, "The imputation models hold main effects only") {
 		t.Error("the caution about terms the imputation models lack is given for a plan of main effects")
 	}
+	// No constrained or stereotype model in the plan: neither the limits
+	// nor the methods speak of their random starts.
+	for _, s := range []string{"several local maxima", "random starts of constrained fits"} {
+		if strings.Contains(md, s) {
+			t.Errorf("a plan without constrained or stereotype models: the report says %q", s)
+		}
+	}
 	// With an interaction and a curve among the terms, the methods
 	// paragraph cautions that the imputation models (main effects only)
 	// do not carry them.

@@ -178,7 +178,11 @@ func writeMethods(d *doc, r *runner.Result) {
 		if or.GOFPooling != nil && or.Lipsitz != nil {
 			s = append(s, fmt.Sprintf("On the imputed data these goodness-of-fit tests were computed on each imputed set with that set's fit of the chosen model, and their chi-square statistics were combined by the D2 rule %s, an approximation that is less powerful than the pooled tests of estimates or likelihoods.", c.cite("d2")))
 		}
-		s = append(s, fmt.Sprintf("Predicted probabilities and marginal effects have delta-method standard errors; the random starts of constrained fits used the seed %d.", p.Seed))
+		if p.Models.HasEffects(fit.ConstrainedEffects) || p.Models.HasEffects(fit.StereotypeEffects) {
+			s = append(s, fmt.Sprintf("Predicted probabilities and marginal effects have delta-method standard errors; the random starts of constrained fits used the seed %d.", p.Seed))
+		} else {
+			s = append(s, "Predicted probabilities and marginal effects have delta-method standard errors.")
+		}
 		d.p("%s", strings.Join(s, " "))
 	}
 	d.p("References:")

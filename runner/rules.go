@@ -854,7 +854,7 @@ func (env *ruleEnv) fallback(r plan.Rule, ro *RuleOutcome) {
 		or.Choice = fmt.Sprintf("no model chosen: every candidate was rejected, and the plan's fallback %s has no usable fit (%s)", r.Otherwise, status)
 		return
 	}
-	why := fmt.Sprintf("fallback: every candidate was rejected, so the plan's fallback model is reported (%d parameters, log-likelihood %s); it was %s", fb.Result.NParams, numfmt.Fixed(fb.Result.LogLik, 3), fb.Rejected)
+	why := fmt.Sprintf("fallback: every candidate was rejected, so the plan's fallback model is reported (%d parameters, log-likelihood %s); it was rejected by %s", fb.Result.NParams, numfmt.Fixed(fb.Result.LogLik, 3), fb.Rejected)
 	ro.Verdicts = append(ro.Verdicts, Verdict{Model: fb.ID, Kept: true, Reason: why})
 	fb.Verdict = "chosen"
 	fb.Rejected = ""

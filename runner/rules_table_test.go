@@ -217,7 +217,7 @@ func TestTableChoose(t *testing.T) {
 		}, choice: "no model chosen: every candidate was rejected, and the plan says to stop (otherwise: stop)"},
 		{name: "all rejected: fallback", rule: "choose: {by: bic, otherwise: cumulative/parallel/logit}", pre: "  - reject_if_unstable: {max_condition: 10}\n",
 			fits: threeFits(), chosen: "cumulative/parallel/logit", fallback: true, want: []string{
-				"cumulative/parallel/logit: kept: fallback: every candidate was rejected, so the plan's fallback model is reported (3 parameters, log-likelihood -47.000); it was reject_if_unstable (rule at line 10): information condition 40 > 10",
+				"cumulative/parallel/logit: kept: fallback: every candidate was rejected, so the plan's fallback model is reported (3 parameters, log-likelihood -47.000); it was rejected by reject_if_unstable (rule at line 10): information condition 40 > 10",
 			}},
 		{name: "all rejected: fallback without a fit", rule: "choose: {by: bic, otherwise: cumulative/nonparallel/logit}", pre: "  - reject_unconverged: true\n",
 			fits: []handFit{
