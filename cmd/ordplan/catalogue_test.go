@@ -26,6 +26,7 @@ import (
 	"testing"
 
 	"github.com/parquet-go/parquet-go"
+	"github.com/xuri/excelize/v2"
 )
 
 // badInput is one catalogue item.
@@ -220,6 +221,7 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		"cr.csv": []byte(strings.ReplaceAll(csv, "\n", "\r")), "two.csv": []byte(two.String()),
 		"bad.xlsx": append([]byte("PK\x03\x04"), bytes.Repeat([]byte{7}, 200)...), "notzip.xlsx": []byte(csv),
 		"bad.parquet": []byte("PAR1garbagegarbagePAR1"), "notpq.parquet": []byte(csv), "dates.parquet": datesParquet(t),
+		"formula.xlsx": formulaWorkbook(t),
 		"book.xlsx":    toWorkbook(t, []byte(strings.ReplaceAll(csv, "safety", "y"))),
 		"parts/p1.csv": []byte(csv), "parts/p2.csv": []byte(csv), "otherpart.csv": []byte("y,a,z\n1,0.5,1\n"),
 		"emptypart.csv": []byte(strings.SplitAfter(csv, "\n")[0]),
@@ -243,6 +245,26 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		t.Fatal(err)
 	}
 	t.Cleanup(lock.Unlock)
+}
+
+// formulaWorkbook is a workbook of y, a, b whose cell B3 is a formula
+// without a saved value (excelize computes none) and C4 an error value.
+func formulaWorkbook(t *testing.T) []byte {
+	t.Helper()
+	f := excelize.NewFile()
+	defer f.Close()
+	for i, row := range [][]any{{"y", "a", "b"}, {1, 0.5, 1}, {2, nil, 0}, {1, 0.7, "#DIV/0!"}, {2, 0.1, 1}} {
+		cell, _ := excelize.CoordinatesToCellName(1, i+1)
+		if err := f.SetSheetRow("Sheet1", cell, &row); err != nil {
+			t.Fatal(err)
+		}
+	}
+	f.SetCellFormula("Sheet1", "B3", "A3/4")
+	var b bytes.Buffer
+	if err := f.Write(&b); err != nil {
+		t.Fatal(err)
+	}
+	return b.Bytes()
 }
 
 // datesParquet is a Parquet file of an outcome y, a number a and a date
@@ -608,6 +630,10 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`bad.parquet: is not a readable Parquet file (parquet file footer of 1701273954 bytes does not fit in a file of 22 bytes)`}},
 		{id: "X15", name: "a Parquet date column used as a number", args: fitArgs(d("dates.parquet"), "--predictors", "a,day"), code: 1,
 			want: []string{`dates.parquet:2: column "day": value "2022-01-08" is not a number`}},
+		{id: "X16", name: "a workbook cell whose formula has no saved value", args: fitArgs(d("formula.xlsx"), "--predictors", "a"), code: 1,
+			want: []string{`formula.xlsx:3: column "a": value "=A3/4" is not a number; the cell holds a formula without its value (the workbook was saved by a program that does not compute formulas): open the workbook in a spreadsheet program and save it, or export the sheet as CSV`}},
+		{id: "X17", name: "a spreadsheet error value in a used column", args: fitArgs(d("formula.xlsx"), "--predictors", "b"), code: 1,
+			want: []string{`formula.xlsx:4: column "b": value "#DIV/0!" is not a number; it is a spreadsheet's error value: correct the formula that gave it, or list "#DIV/0!" among the missing-value markers (data.missing_values)`}},
 		{id: "X6", name: "CSV text named .parquet", args: fitArgs(d("notpq.parquet"), "--predictors", "a,b"), code: 1,
 			want: []string{`notpq.parquet: is not a Parquet file (it does not start and end with PAR1): convert it to Parquet, or give the file a .csv name if it is CSV text`}},
 		{id: "X7", name: "--sheet or --header-row with a file that is not a workbook", args: fitArgs(d("semi.csv"), "--predictors", "a,b", "--sheet", "survey"), code: 2,

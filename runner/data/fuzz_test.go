@@ -70,6 +70,7 @@ func FuzzReadWorkbook(f *testing.F) {
 	f.Add(good[:len(good)/2])
 	f.Add([]byte("PK\x03\x04"))
 	f.Add([]byte("y,a,b\n1,2,3\n"))
+	f.Add(formulaBook(f)) // formulas without saved values (formulas.go)
 	opt := Options{Outcome: "y", Predictors: []string{"a", "b"}}
 	f.Fuzz(func(t *testing.T, in []byte) {
 		if len(in) > 1<<16 {
@@ -80,6 +81,24 @@ func FuzzReadWorkbook(f *testing.F) {
 			var e *Error
 			if !errors.As(err, &e) {
 				t.Fatalf("error %T is not *Error: %v", err, err)
+			}
+		}
+	})
+}
+
+// FuzzScanFormulas feeds arbitrary bytes to the scan of a worksheet's XML
+// for formulas without saved values: it never panics, and a cell it
+// names has a sheet row and column.
+func FuzzScanFormulas(f *testing.F) {
+	f.Add([]byte(`<worksheet><sheetData><row r="2"><c r="B2"><f>A2*2</f></c><c r="C2"><f>1</f><v>1</v></c></row></sheetData></worksheet>`))
+	f.Add([]byte(`<x:worksheet><x:c r="A1" t="str"><x:f t="shared" si="0"/><x:v></x:v></x:c><x:c r="A2"><x:f>`))
+	f.Add([]byte(`<worksheet><c r="A1"><rPr><family val="2"/></rPr><f/></c>`))
+	f.Fuzz(func(t *testing.T, x []byte) {
+		for row, cols := range scanFormulas(x) {
+			for col, text := range cols {
+				if row < 1 || col < 1 || !strings.HasPrefix(text, "=") {
+					t.Fatalf("cell row %d column %d: %q", row, col, text)
+				}
 			}
 		}
 	})

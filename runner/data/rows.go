@@ -241,7 +241,7 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 			if len(opt.Categories) > 0 {
 				i, ok := t.labels[cell]
 				if !ok {
-					msg = "value " + quoteCell(cell) + " is not one of the declared categories: " + quoteList(opt.Categories)
+					msg = "value " + quoteCell(cell) + " is not one of the declared categories: " + quoteList(opt.Categories) + formulaHint(cell)
 				}
 				row.y = i
 				row.outLabel = cell
@@ -253,11 +253,15 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 			if idx, cat := t.levelIndex[c.name]; cat {
 				l, ok := idx[cell]
 				if !ok {
-					msg = "value " + quoteCell(cell) + " is not one of the declared levels of this categorical predictor: " + quoteList(opt.PredictorLevels[c.name]) + " (add it to the levels, or list it among the missing-value markers)"
+					msg = "value " + quoteCell(cell) + " is not one of the declared levels of this categorical predictor: " + quoteList(opt.PredictorLevels[c.name]) + " (add it to the levels, or list it among the missing-value markers)" + formulaHint(cell)
 				}
 				t.xs[c.pos] = float64(l)
 			} else if t.xs[c.pos], msg = r.opt.Dialect.number(cell); strings.HasSuffix(msg, " is not a number") && !isNumberLike(cell) {
-				msg += "; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)"
+				if hint := formulaHint(cell); hint != "" {
+					msg += hint
+				} else {
+					msg += "; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)"
+				}
 			}
 		case roleWeights:
 			row.w, msg = r.opt.Dialect.number(cell)

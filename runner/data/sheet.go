@@ -30,9 +30,12 @@ func IsWorkbook(name string) bool {
 type sheetRecords struct {
 	rows  [][]string
 	first int // sheet row number of rows[0]
-	next  int
-	width int // header width, once read
-	line  int // row number of the last record read
+	// formulas: cells whose formula has no saved value (read as empty by
+	// excelize): sheet row -> column -> the formula's text (unsavedFormulas)
+	formulas map[int]map[int]string
+	next     int
+	width    int // header width, once read
+	line     int // row number of the last record read
 }
 
 // openSheet reads the workbook in raw and returns the records of the
@@ -65,7 +68,7 @@ func openSheet(raw []byte, d Dialect) (*sheetRecords, string) {
 	if h > len(rows) {
 		return nil, fmt.Sprintf("sheet %s has %d rows, so no header in row %d (data.header_row, or --header-row)", quoteCell(sheet), len(rows), h)
 	}
-	return &sheetRecords{rows: rows[h-1:], first: h}, ""
+	return &sheetRecords{rows: rows[h-1:], first: h, formulas: unsavedFormulas(raw, sheet)}, ""
 }
 
 // Read returns the next non-empty row, padded with empty cells to the
@@ -76,6 +79,12 @@ func (s *sheetRecords) Read() ([]string, error) {
 		rec := s.rows[s.next]
 		s.line = s.first + s.next
 		s.next++
+		for col, text := range s.formulas[s.line] {
+			for len(rec) < col {
+				rec = append(rec, "")
+			}
+			rec[col-1] = text
+		}
 		empty := true
 		for _, c := range rec {
 			if strings.TrimSpace(c) != "" {

@@ -1,0 +1,203 @@
+package data
+
+import (
+	"archive/zip"
+	"bytes"
+	"encoding/xml"
+	"html"
+	"io"
+	"path"
+	"strings"
+
+	"github.com/xuri/excelize/v2"
+)
+
+// A workbook written by a program that does not compute formulas (most
+// libraries) saves a formula cell without its value; excelize reads such
+// a cell as empty, which would be a missing value nobody typed. Such cells
+// are read as their formula's text instead ("=B2*2"), which no column
+// takes as a number, a level or a missing-value marker, and the message
+// says what it is (formulaHint).
+
+// unsavedFormulas finds the cells of the sheet whose formula has no saved
+// value: sheet row -> column (1-based) -> "=" and the formula. Nil when
+// there are none or the sheet's XML cannot be found (excelize has read it
+// by then, so a workbook it reads but this does not is left as excelize
+// reads it).
+func unsavedFormulas(raw []byte, sheet string) map[int]map[int]string {
+	zr, err := zip.NewReader(bytes.NewReader(raw), int64(len(raw)))
+	if err != nil {
+		return nil
+	}
+	part := sheetPart(zr, sheet)
+	if part == nil {
+		return nil
+	}
+	rc, err := part.Open()
+	if err != nil {
+		return nil
+	}
+	defer rc.Close()
+	x, err := io.ReadAll(rc)
+	if err != nil {
+		return nil
+	}
+	return scanFormulas(x)
+}
+
+// sheetPart is the ZIP entry of the worksheet named sheet, through the
+// workbook's list of sheets and its relationships.
+func sheetPart(zr *zip.Reader, sheet string) *zip.File {
+	files := map[string]*zip.File{}
+	for _, f := range zr.File {
+		files[strings.TrimPrefix(f.Name, "/")] = f
+	}
+	var book struct {
+		Sheets []struct {
+			Name string `xml:"name,attr"`
+			ID   string `xml:"http://schemas.openxmlformats.org/officeDocument/2006/relationships id,attr"`
+		} `xml:"sheets>sheet"`
+	}
+	var rels struct {
+		Rel []struct {
+			ID     string `xml:"Id,attr"`
+			Target string `xml:"Target,attr"`
+		} `xml:"Relationship"`
+	}
+	bookPath := "xl/workbook.xml"
+	if !readXML(files[bookPath], &book) || !readXML(files["xl/_rels/workbook.xml.rels"], &rels) {
+		return nil
+	}
+	for _, s := range book.Sheets {
+		if s.Name != sheet {
+			continue
+		}
+		for _, r := range rels.Rel {
+			if r.ID == s.ID {
+				target := r.Target
+				if strings.HasPrefix(target, "/") {
+					target = strings.TrimPrefix(target, "/")
+				} else {
+					target = path.Join(path.Dir(bookPath), target)
+				}
+				return files[target]
+			}
+		}
+	}
+	return nil
+}
+
+// readXML decodes a small XML entry into v.
+func readXML(f *zip.File, v any) bool {
+	if f == nil {
+		return false
+	}
+	rc, err := f.Open()
+	if err != nil {
+		return false
+	}
+	defer rc.Close()
+	return xml.NewDecoder(io.LimitReader(rc, 64<<20)).Decode(v) == nil
+}
+
+// scanFormulas finds the formula cells of a worksheet's XML without a
+// saved value (no <v> element, or an empty one), by the bytes: a sheet
+// without formulas costs one search.
+func scanFormulas(x []byte) map[int]map[int]string {
+	root := bytes.Index(x, []byte("worksheet"))
+	lt := bytes.LastIndexByte(x[:max(root, 0)], '<')
+	if root < 0 || lt < 0 {
+		return nil
+	}
+	prefix := string(x[lt+1 : root]) // "" or a namespace prefix such as "x:"
+	openF, openC, endC := []byte("<"+prefix+"f"), []byte("<"+prefix+"c "), []byte("</"+prefix+"c>")
+	openV, endV, endF := []byte("<"+prefix+"v"), []byte("</"+prefix+"v>"), []byte("</"+prefix+"f>")
+	var out map[int]map[int]string
+	for at := 0; ; {
+		i := bytes.Index(x[at:], openF)
+		if i < 0 {
+			return out
+		}
+		i += at
+		at = i + len(openF)
+		if at >= len(x) || !(x[at] == '>' || x[at] == ' ' || x[at] == '/') {
+			continue // another element, such as <family>
+		}
+		e := bytes.Index(x[at:], endC)
+		s := bytes.LastIndex(x[:i], openC)
+		if e < 0 || s < 0 {
+			return out
+		}
+		cell := x[i : at+e]
+		if hasValue(cell, openV, endV) {
+			continue
+		}
+		tag := x[s:i]
+		if gt := bytes.IndexByte(tag, '>'); gt >= 0 {
+			tag = tag[:gt]
+		}
+		col, row, ok := cellRef(tag)
+		if !ok {
+			continue
+		}
+		text := "="
+		if gt := bytes.IndexByte(cell, '>'); gt > 0 && cell[gt-1] != '/' {
+			if end := bytes.Index(cell, endF); end > gt {
+				text += strings.TrimPrefix(html.UnescapeString(string(cell[gt+1:end])), "=")
+			}
+		}
+		if out == nil {
+			out = map[int]map[int]string{}
+		}
+		if out[row] == nil {
+			out[row] = map[int]string{}
+		}
+		out[row][col] = text
+	}
+}
+
+// hasValue reports whether a cell's XML (from its formula on) holds a
+// non-empty <v> element.
+func hasValue(cell, openV, endV []byte) bool {
+	v := bytes.Index(cell, openV)
+	if v < 0 || v+len(openV) >= len(cell) || !(cell[v+len(openV)] == '>' || cell[v+len(openV)] == ' ') {
+		return false
+	}
+	gt := bytes.IndexByte(cell[v:], '>')
+	end := bytes.Index(cell[v:], endV)
+	return gt >= 0 && end > gt+1
+}
+
+// cellRef reads the r="C12" attribute of a cell's start tag.
+func cellRef(tag []byte) (col, row int, ok bool) {
+	i := bytes.Index(tag, []byte(` r="`))
+	if i < 0 {
+		return 0, 0, false
+	}
+	ref := tag[i+4:]
+	j := bytes.IndexByte(ref, '"')
+	if j < 0 {
+		return 0, 0, false
+	}
+	col, row, err := excelize.CellNameToCoordinates(string(ref[:j]))
+	return col, row, err == nil
+}
+
+// formulaHint says what a cell that is not a number is, when a
+// spreadsheet made it so: a formula without a saved value, or an error
+// value; "" for any other text.
+func formulaHint(cell string) string {
+	switch {
+	case strings.HasPrefix(cell, "="):
+		return "; the cell holds a formula without its value (the workbook was saved by a program that does not compute formulas): open the workbook in a spreadsheet program and save it, or export the sheet as CSV"
+	case spreadsheetErrors[cell]:
+		return "; it is a spreadsheet's error value: correct the formula that gave it, or list " + quoteCell(cell) + " among the missing-value markers (data.missing_values)"
+	}
+	return ""
+}
+
+// spreadsheetErrors are the error values a spreadsheet cell can hold.
+var spreadsheetErrors = map[string]bool{
+	"#N/A": true, "#DIV/0!": true, "#VALUE!": true, "#REF!": true, "#NAME?": true, "#NUM!": true, "#NULL!": true,
+	"#SPILL!": true, "#CALC!": true, "#GETTING_DATA": true,
+}
