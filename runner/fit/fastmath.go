@@ -189,16 +189,26 @@ func fastExp(x float64) float64 {
 	return v
 }
 
-// expNegAbsTo sets dst[i] = fastExp(-|src[i]|), bit for bit, with
-// fastExp's body in the loop (no call per value, so that the values'
-// latencies overlap and nothing is saved around calls): the logit
-// kernels' e^-|z| of a block's rows. dst has at least len(src) values.
-func expNegAbsTo(dst, src []float64) {
+// expNegAbsTo sets dst[i] = fastExp(-|src[i]|), bit for bit (expTo): the
+// logit kernels' e^-|z| of a block's rows. dst has at least len(src)
+// values.
+func expNegAbsTo(dst, src []float64) { expTo(dst, src, true) }
+
+// expTo sets dst[i] = fastExp(x) for x = src[i] (negAbs: x = -|src[i]|,
+// its sign bit set), bit for bit, with fastExp's body in the loop (no call
+// per value, so that the values' latencies overlap and nothing is saved
+// around calls): the logit kernels' exponentials of a block's rows. dst
+// has at least len(src) values.
+func expTo(dst, src []float64, negAbs bool) {
 	dst = dst[:len(src)]
-	for i, z := range src {
-		x := -math.Abs(z)
-		if !(x >= -expSmall) {
-			// below -700 (the scaled path), NaN: fastExp itself
+	var sign uint64
+	if negAbs {
+		sign = 1 << 63
+	}
+	for i, x := range src {
+		x = math.Float64frombits(math.Float64bits(x) | sign)
+		if !(x >= -expSmall && x <= expFast) {
+			// below -700 or above 708 (the scaled paths), NaN: fastExp itself
 			dst[i] = fastExp(x)
 			continue
 		}

@@ -306,13 +306,13 @@ func TestFastMathReference(t *testing.T) {
 	}
 }
 
-// TestExpNegAbsTo checks the loop form of fastExp (expNegAbsTo) against
-// fastExp itself, bit for bit, on seeded arguments of every range it
-// meets (the kernels' z, the far tails, the scaled path below -700,
-// infinities and NaN).
+// TestExpNegAbsTo checks the loop form of fastExp (expNegAbsTo, and expTo
+// of the arguments themselves) against fastExp itself, bit for bit, on
+// seeded arguments of every range it meets (the kernels' z, the far
+// tails, the scaled paths below -700 and above 708, infinities and NaN).
 func TestExpNegAbsTo(t *testing.T) {
 	r := rand.New(rand.NewPCG(23, 5))
-	src := []float64{0, math.Copysign(0, -1), 700, -700, 700.0000001, 708, 709, 745, 746, 1e300, math.Inf(1), math.Inf(-1), math.NaN(), 5e-324}
+	src := []float64{0, math.Copysign(0, -1), 700, -700, 700.0000001, 708, 708.0000001, -708.5, 709, 709.7, 709.9, 745, 746, 1e300, math.Inf(1), math.Inf(-1), math.NaN(), 5e-324}
 	for i := 0; i < 200000; i++ {
 		switch i % 4 {
 		case 0:
@@ -330,6 +330,12 @@ func TestExpNegAbsTo(t *testing.T) {
 	for i, z := range src {
 		if want := fastExp(-math.Abs(z)); math.Float64bits(dst[i]) != math.Float64bits(want) && !(math.IsNaN(want) && math.IsNaN(dst[i])) {
 			t.Fatalf("expNegAbsTo(%v) = %v, fastExp %v", z, dst[i], want)
+		}
+	}
+	expTo(dst, src, false)
+	for i, z := range src {
+		if want := fastExp(z); math.Float64bits(dst[i]) != math.Float64bits(want) && !(math.IsNaN(want) && math.IsNaN(dst[i])) {
+			t.Fatalf("expTo(%v) = %v, fastExp %v", z, dst[i], want)
 		}
 	}
 }

@@ -94,44 +94,227 @@ func (p *problem) tailKernels(c *coefs, lo, rows, order int, a *acc, s *scratch)
 }
 
 // adjacentKernels is blockKernels for an adjacent model under the logit
-// link with observed derivatives and fewer than 16 equations: per row
-// adjacentProbs, the first derivatives 1 - C_m (m at or above the
-// category) or -C_m, and the second derivatives -C_m (1 - C_l) of every
-// pair m <= l.
+// link with observed derivatives and fewer than 16 equations: adjacentProbs
+// of every row, the first derivatives 1 - C_m (m at or above the category)
+// or -C_m, and the second derivatives -C_m (1 - C_l) of every pair
+// m <= l. In sweeps over chunks of adjacentChunk rows (adjacentRows), so
+// that the rows, which do not depend on one another, overlap and no
+// branch depends on a row's values; the same sums in the same order as
+// adjacentProbs: its values bit for bit.
 func (p *problem) adjacentKernels(c *coefs, lo, rows, order int, a *acc, s *scratch) bool {
-	q, es := p.q, s.etaStride
+	var w []float64
+	if p.d.w != nil {
+		w = p.d.w[lo : lo+rows]
+	}
 	y := p.d.y[lo : lo+rows]
-	gs, hp, w := p.kernelColumns(lo, rows, order, s)
-	var lbuf, sbuf, pbuf [16]float64
-	L, sv, P := lbuf[:q], sbuf[:q+1], pbuf[:q+1]
+	for off := 0; off < rows; off += adjacentChunk {
+		n := min(adjacentChunk, rows-off)
+		wn := ones[:n]
+		if w != nil {
+			wn = w[off : off+n]
+		}
+		if !p.adjacentRows(c, off, n, rows, order, y[off:off+n], wn, a, s) {
+			return false
+		}
+	}
+	if order < 1 || w == nil {
+		return true
+	}
+	// Rows of weight 0 contribute nothing (their columns were written).
+	gs, hp := s.gs[:p.q*rows], s.hp[:len(p.pairs)*rows]
+	if order < 2 {
+		hp = nil
+	}
+	for i, wi := range w {
+		if wi != 0 {
+			continue
+		}
+		for m := range p.q {
+			gs[m*rows+i] = 0
+		}
+		for pi := range len(hp) / rows {
+			hp[pi*rows+i] = 0
+		}
+	}
+	return true
+}
+
+// adjacentChunk is the number of rows adjacentKernels takes through its
+// sweeps at once: its columns (2q + 4 of them) stay in the first-level
+// cache.
+const adjacentChunk = 256
+
+// ones are the weights of adjacentChunk rows of weight 1: x times 1 is x,
+// as the general kernel's weight of 1 times its value.
+var ones = func() (o [adjacentChunk]float64) {
+	for i := range o {
+		o[i] = 1
+	}
+	return o
+}()
+
+// adjacentRows is adjacentKernels for the n rows of the block (of rows
+// rows) from off on, whose categories are y and weights w, in phases over
+// the rows, each one sweep per category or equation (small loops of their
+// own, so that the compiler keeps each one's values in registers):
+//   - the category scores s_j = s_(j+1) + L_j summed from the top and
+//     top, the highest category whose score is larger than every score
+//     above it (adjacentProbs' search, a selection instead of a branch);
+//   - the scores relative to top, t_j, summed again from top downward and
+//     upward (adjacentProbs' sums, each row's own selected);
+//   - e^(t_j) of every row and category in one loop (expTo), their sums
+//     in the order of the categories, the logarithms, log P = t_c - log sum;
+//   - the log-likelihood in the order of the rows;
+//   - the probabilities P_j/sum, C_m and U_m = 1 - C_m summed from the side
+//     of each, the first and second derivatives.
+func (p *problem) adjacentRows(c *coefs, off, n, rows, order int, y []int, w []float64, a *acc, s *scratch) bool {
+	q, es := p.q, s.etaStride
+	t, top := s.kernelTemp(2*q+4, n)
+	top = top[:n]
+	T, P := t[:(q+1)*n], t[(q+1)*n:2*(q+1)*n]
+	S, lg := t[2*(q+1)*n:][:n], t[(2*q+3)*n:][:n]
+	tau := c.tau[:q]
+	col := func(v []float64, j int) []float64 { return v[j*n : (j+1)*n] }
+	eta := func(m int) []float64 { return s.eta[m*es+off:][:n] }
+	// The scores from the top (s_q = 0) and the first largest (in lg).
+	clear(S)
+	clear(lg)
+	for i := range top {
+		top[i] = q
+	}
+	for j := q - 1; j >= 0; j-- {
+		adjacentTop(S, lg, top, eta(j), tau[j], j)
+	}
+	// t_j: 0 at top, t_(j+1) + L_j below it, t_(j-1) - L_(j-1) above it.
+	clear(col(T, q))
+	for j := q - 1; j >= 0; j-- {
+		adjacentBelow(col(T, j), col(T, j+1), eta(j), top, tau[j], j)
+	}
+	for j := 1; j <= q; j++ {
+		adjacentAbove(col(T, j), col(T, j-1), eta(j-1), top, tau[j-1], j)
+	}
+	// e^(t_j), their sums (0 + P_0 is P_0: P_0 >= +0) and logarithms.
+	expTo(P, T, false)
+	copy(S, col(P, 0))
+	for j := 1; j <= q; j++ {
+		sumTo(S, S, col(P, j))
+	}
+	for i, v := range S {
+		lg[i] = T[y[i]*n+i] - fastLog(v)
+	}
+	if !addLogLik(a, lg, w) {
+		return false
+	}
+	if order < 1 {
+		return true
+	}
+	// P_j/sum; C_m = P_0 + ... + P_m (into T, m < q) and U_m = P_q + ...
+	// + P_(m+1) (into P at m + 1), each 0 plus its first term exactly.
+	for j := 0; j <= q; j++ {
+		divTo(col(P, j), S)
+	}
+	copy(col(T, 0), col(P, 0))
+	for m := 1; m < q; m++ {
+		sumTo(col(T, m), col(T, m-1), col(P, m))
+	}
+	for m := q - 2; m >= 0; m-- {
+		sumTo(col(P, m+1), col(P, m+2), col(P, m+1))
+	}
+	C, U := T[:q*n], P[n:(q+1)*n]
+	for m := range q {
+		adjacentFirst(s.gs[m*rows+off:][:n], w, col(C, m), col(U, m), y, m)
+	}
+	if order >= 2 {
+		for pi, pr := range p.pairs {
+			adjacentSecond(s.hp[pi*rows+off:][:n], w, col(C, pr[0]), col(U, pr[1]))
+		}
+	}
+	return true
+}
+
+// adjacentTop adds L_j = tau - eta to the rows' scores S (summed from the
+// top) and makes j the rows' top where the score is larger than mx, the
+// largest above it (then the score).
+func adjacentTop(S, mx []float64, top []int, eta []float64, tau float64, j int) {
+	S, mx, top = S[:len(eta)], mx[:len(eta)], top[:len(eta)]
+	for i, v := range eta {
+		sj := S[i] + (tau - v)
+		S[i] = sj
+		up := sj > mx[i]
+		mx[i] = pick(up, sj, mx[i])
+		if up {
+			top[i] = j
+		}
+	}
+}
+
+// adjacentBelow sets t_j = t_(j+1) + L_j (next: t_(j+1)) for rows whose
+// top is above j, else 0.
+func adjacentBelow(cur, next, eta []float64, top []int, tau float64, j int) {
+	cur, next, top = cur[:len(eta)], next[:len(eta)], top[:len(eta)]
+	for i, v := range eta {
+		cur[i] = pick(j < top[i], next[i]+(tau-v), 0)
+	}
+}
+
+// adjacentAbove sets t_j = t_(j-1) - L_(j-1) (prev: t_(j-1); tau and eta:
+// equation j - 1's) for rows whose top is below j, and leaves it else.
+func adjacentAbove(cur, prev, eta []float64, top []int, tau float64, j int) {
+	cur, prev, top = cur[:len(eta)], prev[:len(eta)], top[:len(eta)]
+	for i, v := range eta {
+		cur[i] = pick(j > top[i], prev[i]-(tau-v), cur[i])
+	}
+}
+
+// adjacentFirst sets the first derivatives of equation m, w times U_m
+// (m at or above the row's category y) or -C_m.
+func adjacentFirst(g, w, cm, um []float64, y []int, m int) {
+	g, w, cm, um = g[:len(y)], w[:len(y)], cm[:len(y)], um[:len(y)]
 	for i, yi := range y {
-		wi := weightOf(w, i)
+		g[i] = w[i] * pick(m >= yi, um[i], -cm[i])
+	}
+}
+
+// adjacentSecond sets the second derivatives of a pair m <= l, w times
+// -(C_m U_l).
+func adjacentSecond(h, w, cm, ul []float64) {
+	h, w, ul = h[:len(cm)], w[:len(cm)], ul[:len(cm)]
+	for i, v := range cm {
+		h[i] = w[i] * -(v * ul[i])
+	}
+}
+
+// sumTo sets dst[i] = a[i] + b[i].
+func sumTo(dst, a, b []float64) {
+	a, b = a[:len(dst)], b[:len(dst)]
+	for i := range dst {
+		dst[i] = a[i] + b[i]
+	}
+}
+
+// divTo divides dst[i] by d[i].
+func divTo(dst, d []float64) {
+	d = d[:len(dst)]
+	for i := range dst {
+		dst[i] /= d[i]
+	}
+}
+
+// addLogLik adds the rows' log-probabilities lp, weighted by w, to the
+// log-likelihood and its smallest term, in the order of the rows (rows of
+// weight 0 left out); false if one is not finite.
+func addLogLik(a *acc, lp, w []float64) bool {
+	w = w[:len(lp)]
+	for i, v := range lp {
+		wi := w[i]
 		if wi == 0 {
 			continue
 		}
-		for m := range L {
-			L[m] = c.tau[m] - s.eta[m*es+i]
-		}
-		lp, ok, C, U := adjacentProbs(L, yi, sv, P, order >= 1)
-		if !ok {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
 			return false
 		}
-		a.ll += wi * lp
-		a.minLP = min(a.minLP, lp)
-		if order >= 1 {
-			for m := range L {
-				g := -C[m]
-				if m >= yi {
-					g = U[m]
-				}
-				gs[m*rows+i] = wi * g
-			}
-		}
-		if order >= 2 {
-			for pi, pr := range p.pairs {
-				hp[pi*rows+i] = wi * -(C[pr[0]] * U[pr[1]])
-			}
-		}
+		a.ll += wi * v
+		a.minLP = min(a.minLP, v)
 	}
 	return true
 }

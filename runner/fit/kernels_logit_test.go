@@ -1,6 +1,7 @@
 package fit
 
 import (
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"testing"
@@ -56,55 +57,119 @@ func TestBlockKernelsAsGeneral(t *testing.T) {
 				if !p.blockKernels(c, 0, n, order, false, a, s) {
 					t.Fatalf("%s J=%d: kernel failed", tc.name, J)
 				}
-				// The general kernel, row by row.
-				q := p.q
-				ll, minLP := 0.0, math.Inf(1)
-				g, h, L := make([]float64, q), make([]float64, q*q), make([]float64, q)
-				for i := 0; i < n; i++ {
-					w := d.Weights[i]
-					if w == 0 {
-						for mm := 0; mm < q && order >= 1; mm++ {
-							if v := s.gs[mm*n+i]; v != 0 {
-								t.Fatalf("%s J=%d row %d (weight 0): g[%d] = %v", tc.name, J, i, mm, v)
-							}
-						}
-						for pi := range p.pairs {
-							if order < 2 {
-								break
-							}
-							if v := s.hp[pi*n+i]; v != 0 {
-								t.Fatalf("%s J=%d row %d (weight 0): h of pair %d = %v", tc.name, J, i, pi, v)
-							}
-						}
-						continue
-					}
-					for mm := range L {
-						L[mm] = c.tau[mm] - s.eta[mm*s.etaStride+i]
-					}
-					lp, ok := p.ker.eval(L, d.Y[i], g, h)
-					if !ok {
-						t.Fatalf("%s J=%d row %d: general kernel failed", tc.name, J, i)
-					}
-					ll += w * lp
-					minLP = math.Min(minLP, lp)
-					for mm := 0; mm < q && order >= 1; mm++ {
-						if got, want := s.gs[mm*n+i], w*g[mm]; math.Float64bits(got) != math.Float64bits(want) {
-							t.Fatalf("%s J=%d order %d row %d: g[%d] = %v, general %v", tc.name, J, order, i, mm, got, want)
-						}
-					}
-					for pi, pr := range p.pairs {
-						if order < 2 {
-							break
-						}
-						if got, want := s.hp[pi*n+i], w*h[pr[0]*q+pr[1]]; math.Float64bits(got) != math.Float64bits(want) {
-							t.Fatalf("%s J=%d row %d: h[%d,%d] = %v, general %v", tc.name, J, i, pr[0], pr[1], got, want)
-						}
-					}
-				}
-				if a.ll != ll || a.minLP != minLP {
-					t.Errorf("%s J=%d order %d: ll %v min %v, general %v %v", tc.name, J, order, a.ll, a.minLP, ll, minLP)
+				checkAsGeneral(t, fmt.Sprintf("%s J=%d order %d", tc.name, J, order), p, c, s, d, order, a)
+			}
+		}
+	}
+}
+
+// checkAsGeneral checks the block kernel's values of the block of all of
+// d's rows (in s and a, derivatives to order) against the general kernel
+// (kernel.eval, row by row, weighted as blockKernels weights it), bit for
+// bit; rows of weight 0 must have derivatives 0.
+func checkAsGeneral(t *testing.T, name string, p *problem, c *coefs, s *scratch, d *Data, order int, a *acc) {
+	t.Helper()
+	n, q := len(d.Y), p.q
+	ll, minLP := 0.0, math.Inf(1)
+	g, h, L := make([]float64, q), make([]float64, q*q), make([]float64, q)
+	for i := 0; i < n; i++ {
+		w := 1.0
+		if d.Weights != nil {
+			w = d.Weights[i]
+		}
+		if w == 0 {
+			for mm := 0; mm < q && order >= 1; mm++ {
+				if v := s.gs[mm*n+i]; v != 0 {
+					t.Fatalf("%s row %d (weight 0): g[%d] = %v", name, i, mm, v)
 				}
 			}
+			for pi := range p.pairs {
+				if order < 2 {
+					break
+				}
+				if v := s.hp[pi*n+i]; v != 0 {
+					t.Fatalf("%s row %d (weight 0): h of pair %d = %v", name, i, pi, v)
+				}
+			}
+			continue
+		}
+		for mm := range L {
+			L[mm] = c.tau[mm] - s.eta[mm*s.etaStride+i]
+		}
+		lp, ok := p.ker.eval(L, d.Y[i], g, h)
+		if !ok {
+			t.Fatalf("%s row %d: general kernel failed", name, i)
+		}
+		ll += w * lp
+		minLP = math.Min(minLP, lp)
+		for mm := 0; mm < q && order >= 1; mm++ {
+			if got, want := s.gs[mm*n+i], w*g[mm]; math.Float64bits(got) != math.Float64bits(want) {
+				t.Fatalf("%s row %d: g[%d] = %v, general %v", name, i, mm, got, want)
+			}
+		}
+		for pi, pr := range p.pairs {
+			if order < 2 {
+				break
+			}
+			if got, want := s.hp[pi*n+i], w*h[pr[0]*q+pr[1]]; math.Float64bits(got) != math.Float64bits(want) {
+				t.Fatalf("%s row %d: h[%d,%d] = %v, general %v", name, i, pr[0], pr[1], got, want)
+			}
+		}
+	}
+	if a.ll != ll || a.minLP != minLP {
+		t.Errorf("%s: ll %v min %v, general %v %v", name, a.ll, a.minLP, ll, minLP)
+	}
+}
+
+// TestAdjacentKernelsFar checks adjacentKernels against the general kernel
+// (adjacentProbs), bit for bit, where the rows' L_m are far from the
+// values of a fit: equal category scores (L_m of 0 and whole numbers, so
+// that the search for the largest meets ties), L_m in the hundreds and
+// thousands (exponentials below -700 and 0, relative scores above 0 by
+// rounding), up to 1e15, with weights of 0, and a block of rows not a
+// multiple of adjacentChunk.
+func TestAdjacentKernelsFar(t *testing.T) {
+	for J := 2; J <= 7; J++ {
+		const n = 1100
+		d := speedData(n, 2, J)
+		rng := rand.New(rand.NewPCG(29, uint64(J)))
+		d.Weights = make([]float64, n)
+		for i := range d.Weights {
+			d.Weights[i] = []float64{0, 0.5, 1, 2}[rng.IntN(4)]
+		}
+		m := Model{Comparison: Adjacent, Link: Logit, Effects: []Effect{Nonparallel, Nonparallel}}
+		p, theta := atMarginalCutpoints(t, d, m)
+		c := p.coefs(theta)
+		for order := 0; order <= 2; order++ {
+			s := p.newScratch()
+			p.blockColumns(c, 0, n, s)
+			p.blockLinear(c, 0, n, order >= 1, s)
+			cols := J - 1 // equations with a column of their own (one shared: stride 0)
+			if s.etaStride == 0 {
+				cols = 1
+			}
+			r := rand.New(rand.NewPCG(31, uint64(J)))
+			for i := range s.eta[:cols*n] {
+				switch r.IntN(6) {
+				case 0:
+					s.eta[i] = c.tau[i/n] // L = 0
+				case 1:
+					s.eta[i] = c.tau[i/n] - float64(r.IntN(5)-2)
+				case 2:
+					s.eta[i] = c.tau[i/n] - 300*r.NormFloat64()
+				case 3:
+					s.eta[i] = 2000 * r.NormFloat64()
+				case 4:
+					s.eta[i] = math.Ldexp(r.NormFloat64(), r.IntN(50))
+				default:
+					s.eta[i] = 3 * r.NormFloat64()
+				}
+			}
+			a := p.newAcc(0)
+			if !p.blockKernels(c, 0, n, order, false, a, s) {
+				t.Fatalf("J=%d order %d: kernel failed", J, order)
+			}
+			checkAsGeneral(t, fmt.Sprintf("far J=%d order %d", J, order), p, c, s, d, order, a)
 		}
 	}
 }
