@@ -97,6 +97,15 @@ type Spread struct {
 
 // SpreadOf is the spread of the predictors over the rows of d.
 func SpreadOf(d *Data) *Spread {
+	s, _ := spreadOf(d, false)
+	return s
+}
+
+// spreadOf is SpreadOf and, when third is set, each predictor's weighted
+// third absolute central moment sum(w |x - mean|^3) / sum(w), from the
+// same pass as the sums of squares (the approximation's allowance,
+// surrogate.go).
+func spreadOf(d *Data, third bool) (*Spread, []float64) {
 	K := len(d.Predictors)
 	s := &Spread{Mean: make([]float64, K), SS: make([]float64, K)}
 	for i := range d.Y {
@@ -109,14 +118,29 @@ func SpreadOf(d *Data) *Spread {
 	for k := range s.Mean {
 		s.Mean[k] /= s.Weight
 	}
+	if !third {
+		for i := range d.Y {
+			w := d.weight(i)
+			for k := 0; k < K; k++ {
+				v := d.at(i, k) - s.Mean[k]
+				s.SS[k] += w * v * v
+			}
+		}
+		return s, nil
+	}
+	m3 := make([]float64, K)
 	for i := range d.Y {
 		w := d.weight(i)
 		for k := 0; k < K; k++ {
 			v := d.at(i, k) - s.Mean[k]
 			s.SS[k] += w * v * v
+			m3[k] += w * math.Abs(v*v*v)
 		}
 	}
-	return s
+	for k := range m3 {
+		m3[k] /= s.Weight
+	}
+	return s, m3
 }
 
 // Merge adds the rows summarized by o to s (the pairwise update of means

@@ -40,7 +40,8 @@ func newAuxiliary(d *Data, m Model, ly *layout, opt Options, sh *shared) (*auxil
 	// The auxiliary fits keep the subsample threshold: a grid shares one
 	// subsample and hands its partial fit over as this one (FitGrid).
 	o := Options{MaxIter: opt.MaxIter, Workers: opt.Workers, SubsampleAbove: opt.SubsampleAbove}
-	a := &auxiliary{sd: predictorSD(d), partM: partM}
+	spread, m3 := spreadOf(d, true)
+	a := &auxiliary{sd: spread.SD(), partM: partM}
 	pLy, err := newLayout(partM, d.J, d.Predictors)
 	if err != nil {
 		return nil, err
@@ -52,7 +53,7 @@ func newAuxiliary(d *Data, m Model, ly *layout, opt Options, sh *shared) (*auxil
 		a.partial = partial
 		if info, err := invertSym(partial.Cov, len(partial.Estimates)); err == nil {
 			a.sur = &surrogate{rankMap: newRankMap(ly, pLy, m.Effects, nil), hat: partial.Estimates, info: info,
-				peak: partial.LogLik, weight: d.NObs()}
+				peak: partial.LogLik, logit: m.Link == Logit, shape: largestShape(m3, a.sd)}
 		}
 	}
 	a.screen = a.sur != nil && d.N() > opt.screenAbove()

@@ -13,8 +13,14 @@ type surrogate struct {
 	hat  []float64
 	info []float64
 	// peak is the partial fit's log-likelihood (the approximation's value
-	// at hat), weight the total weight of the rows.
-	peak, weight float64
+	// at hat).
+	peak float64
+	// logit: the model's link is the logit, whose log-likelihood has the
+	// bound on third derivatives that outOfReach's allowance rests on.
+	logit bool
+	// shape is the largest standardized third absolute moment of the
+	// predictors, at least the normal's (largestShape).
+	shape float64
 }
 
 // parallelStart returns the maximum of the approximation with phi = 1: h
@@ -160,29 +166,94 @@ func (s *surrogate) match(sur []float64, runs []*runRecord) *runRecord {
 	return nil
 }
 
-// reachAllowance: the approximation's value ll_partial - Q at a point
-// where Q is large is trusted only to within reachAllowance Q sqrt(Q / N)
-// (N the total weight of the rows; see outOfReach).
-const reachAllowance = 4
+// reachAllowance is the constant C of the allowance for the
+// approximation's error, C shape Q sqrt(Q / W) (outOfReach): sqrt(2) R / 3
+// with R = 2.
+var reachAllowance = 2 * math.Sqrt2 / 3
+
+// normalShape is E|z|^3 of a standard normal z, 2 sqrt(2 / pi).
+var normalShape = 2 * math.Sqrt(2/math.Pi)
+
+// largestShape is the largest standardized third absolute moment
+// m3 / sd^3 of the predictors (m3 from spreadOf), at least normalShape.
+func largestShape(m3, sd []float64) float64 {
+	s := normalShape
+	for k, v := range m3 {
+		if sd[k] > 0 {
+			s = math.Max(s, v/(sd[k]*sd[k]*sd[k]))
+		}
+	}
+	return s
+}
+
+// curvature is W, the smallest information of a cutpoint of the partial
+// model: the total weight of the rows times their mean curvature
+// (-d2 l_i / d eta_j^2) in the equation that has the least.
+func (s *surrogate) curvature() float64 {
+	Pn := len(s.np.params)
+	w := math.Inf(1)
+	for _, c := range s.np.cut {
+		w = math.Min(w, s.info[c*Pn+c])
+	}
+	return w
+}
 
 // outOfReach reports whether a start whose maximum of the approximation is
 // sur cannot reach the best log-likelihood best, and by how much the
 // approximation puts it below (Q less the allowance, beyond the gap
-// between ll_partial and best). The approximation's value there, ll_partial
-// - Q, is in error by the cubic and higher terms of the log-likelihood
-// around the partial fit, about Q sqrt(Q / N) times a constant of the
-// data (Q / N is the squared change of the linear predictors per unit of
-// weight): the error at sur, and the climb that the data's own gradient
-// there still allows, were 0.1 to 1.1 of Q sqrt(Q / N) on the starts of
-// the benchmark's grid at n = 1e6 that the data showed to be near lower
-// maxima (the ridge g -> 0, |phi| -> inf, 200 to 5400 below the best). A
-// start is out of reach when even reachAllowance times that error leaves
-// its value below the best (never once Q exceeds N / reachAllowance^2).
+// between ll_partial and best).
+//
+// Why the allowance: the constrained model's log-likelihood is the
+// partial model's at beta = h(theta), l(beta) = sum_i w_i l_i(eta_i) with
+// eta_i = x_i' beta, and the approximation is its expansion to second
+// order at the partial maximum, ll_partial - Q, Q = 1/2 sum_i w_i v_i d_i^2
+// (v_i = -l_i”, d_i the change of row i's linear predictor). The error is
+// led by the cubic term E = 1/6 sum_i w_i l_i”' d_i^3. The logit's
+// derivatives obey |l_i”'| <= R v_i: for a binary comparison
+// |p(1-p)(1-2p)| <= p(1-p), R = 1; a row of the cumulative and adjacent
+// comparisons lies between two boundaries whose changes add, and R = 2 is
+// taken for every logit model. So |E| <= R/6 sum_i w_i v_i |d_i|^3. The
+// change is carried by the predictors, d_i ~ a z_i with z a standardized
+// predictor; with the curvature v_i taken as unrelated to z (rows with
+// extreme z have extreme fitted probabilities and less curvature, so this
+// overstates E), sum_i w_i v_i |d_i|^3 = W |a|^3 shape and 2Q = W a^2, with
+// W = sum_i w_i v_i and shape = E|z|^3. Hence
+//
+//	|E| <= C shape Q sqrt(Q / W), C = sqrt(2) R / 3.
+//
+// W / shape^2 is the effective size of the data for the approximation: W
+// is the smallest cutpoint information (the total weight times the mean
+// curvature in the weakest equation: a stage reached by few rows, an
+// extreme category), and a 0/1 predictor with a share p of ones has shape
+// (1 - 2p + 2p^2) / sqrt(p(1-p)), about 1/sqrt(p), so that W / shape^2 is
+// about p W, the information of the rows that carry it. Heavy tails raise
+// shape the same way. shape is the largest over the predictors, at least
+// the normal's (a change along several predictors is closer to normal
+// than the most even of them).
+//
+// The start, run on the data, climbs from its maximum of the approximation
+// to a maximum of the log-likelihood; while it stays where the
+// approximation rises towards sur (Q >= Q(sur)), its value is at most
+// ll_partial - Q + C shape Q sqrt(Q / W), which falls as Q grows while the
+// allowance is below 2Q/3. A start is out of reach when ll_partial - Q(sur)
+// plus the allowance is below the best, and only while the allowance is at
+// most Q/2 (beyond, the cubic term no longer leads). No link other than the
+// logit bounds l”' by l” (the probit's ratio grows like |eta|, the
+// Cauchy's log-likelihood is not concave): those models abandon no start on
+// the approximation alone. TestOutOfReachStartsEndBelow (references, ridge
+// data) and TestOutOfReachAdversarial (rare 0/1 and heavy-tailed
+// constrained predictors, several maxima, weights, data just above the
+// screening threshold) run every such start to its end.
 func (s *surrogate) outOfReach(sur []float64, best float64) (float64, bool) {
-	if math.IsInf(best, -1) || !(s.weight > 0) {
+	W := s.curvature()
+	if math.IsInf(best, -1) || !s.logit || !(W > 0) || math.IsInf(W, 1) {
 		return 0, false
 	}
 	Q, _ := s.value(sur)
-	short := Q - reachAllowance*Q*math.Sqrt(Q/s.weight) - (s.peak - best) - sameLL
+	allow := reachAllowance * s.shape * Q * math.Sqrt(Q/W)
+	if !(allow <= Q/2) {
+		return 0, false
+	}
+	short := Q - allow - (s.peak - best) - sameLL
 	return short, short > 0
 }
