@@ -211,8 +211,10 @@ func (s *surrogate) curvature() float64 {
 // led by the cubic term E = 1/6 sum_i w_i l_i”' d_i^3. The logit's
 // derivatives obey |l_i”'| <= R v_i: for a binary comparison
 // |p(1-p)(1-2p)| <= p(1-p), R = 1; a row of the cumulative and adjacent
-// comparisons lies between two boundaries whose changes add, and R = 2 is
-// taken for every logit model. So |E| <= R/6 sum_i w_i v_i |d_i|^3. The
+// comparisons depends on the linear predictors of two or more equations,
+// whose changes can add, and R = 2 is taken for every logit model (for
+// such rows an assumption, not a proof: the tests below check it on the
+// data least favourable to it). So |E| <= R/6 sum_i w_i v_i |d_i|^3. The
 // change is carried by the predictors, d_i ~ a z_i with z a standardized
 // predictor; with the curvature v_i taken as unrelated to z (rows with
 // extreme z have extreme fitted probabilities and less curvature, so this
