@@ -5,6 +5,9 @@ import (
 	"crypto/sha256"
 	"encoding/csv"
 	"encoding/hex"
+	"fmt"
+	"math"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"slices"
@@ -125,7 +128,14 @@ func dialectDecisions(t *testing.T, dir, file string, data []byte, extra string)
 	if err := os.WriteFile(filepath.Join(dir, file), data, 0o644); err != nil {
 		t.Fatal(err)
 	}
-	p := dialectPlan(t, dir, file, extra)
+	return planDecisions(t, dir, file, data, dialectPlan(t, dir, file, extra))
+}
+
+// planDecisions runs the plan p over data written as dir/file and returns
+// its decisions.json, the hashes and the file's name replaced as
+// dialectDecisions does.
+func planDecisions(t *testing.T, dir, file string, data []byte, p string) []byte {
+	t.Helper()
 	out := filepath.Join(dir, "out")
 	if stdout, stderr, code := runCLI("run", p, "--out", out, "--quiet"); code != 0 {
 		t.Fatalf("%s: exit %d: %s %s", file, code, stdout, stderr)
@@ -472,4 +482,148 @@ func TestPartsGiveIdenticalDecisions(t *testing.T) {
 	want := run("all.csv", "  sheet: survey\n  header_row: 3\n")
 	got := run("", "  parts: [parts/*.csv, extra/p4.parquet, extra/p5.xlsx]\n  sheet: survey\n  header_row: 3\n")
 	sameDecisions(t, "the concatenated file and the parts", want, got)
+}
+
+// formatsPlan is a plan over the data of gappyCSV in dir, read from file;
+// extra goes under data.
+func formatsPlan(t *testing.T, dir, file, extra string) string {
+	t.Helper()
+	src := `version: 1
+title: Formats agree
+seed: 11
+data:
+  file: ` + file + `
+  missing_values: ["", "NA"]
+` + extra + `
+outcomes:
+  - column: outcome
+    categories: [low, mid, high]
+categorical:
+  grp: {levels: [north, south, east]}
+predictors: [x, z, grp]
+models:
+  approaches: [cumulative, stage]
+  effects: [parallel, nonparallel]
+  links: [logit]
+tests:
+  parallel_lines: [lr, wald]
+rules:
+  - reject_unconverged: true
+  - prefer_simpler: {by: bic, margin: 2}
+report:
+  timestamp: false
+`
+	p := filepath.Join(dir, "plan.yaml")
+	if err := os.WriteFile(p, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+// gappyCSV is seeded invented data: an ordered outcome of three labels, a
+// number x with missing values written NA (or empty, when na is ""), a
+// number z and a categorical grp with empty cells.
+func gappyCSV(na string) []byte {
+	rng := rand.New(rand.NewPCG(19, 3))
+	var b strings.Builder
+	b.WriteString("outcome,x,z,grp\n")
+	shift := map[string]float64{"north": 0, "south": 0.5, "east": -0.4}
+	for range 300 {
+		x := math.Round(rng.NormFloat64()*1e4) / 1e4
+		z := math.Round(1e4+rng.Float64()*8e3) / 100
+		g := []string{"north", "south", "east"}[rng.IntN(3)]
+		eta := 0.8*x + 0.02*z + shift[g] + rng.NormFloat64()
+		y := "high"
+		switch {
+		case eta < 0.6:
+			y = "low"
+		case eta < 1.6:
+			y = "mid"
+		}
+		xs := strconv.FormatFloat(x, 'g', -1, 64)
+		if rng.Float64() < 0.05 {
+			xs = na
+		}
+		if rng.Float64() < 0.04 {
+			g = ""
+		}
+		fmt.Fprintf(&b, "%s,%s,%s,%s\n", y, xs, strconv.FormatFloat(z, 'g', -1, 64), g)
+	}
+	return []byte(b.String())
+}
+
+// The same data with a categorical predictor and missing values (NA, and
+// empty cells in the numeric and the categorical column) in CSV (comma
+// and point; semicolon and decimal comma; tab, CRLF line ends and a byte
+// order mark), an .xlsx workbook (NA as text, or empty cells) and Parquet
+// (nulls; the categorical column dictionary-encoded or not) give
+// byte-identical decisions.json through ordplan run, but for the hashes
+// of the files as read.
+func TestFormatsAgreeWithLevelsAndGaps(t *testing.T) {
+	raw, empty := gappyCSV("NA"), gappyCSV("")
+	tab := bytes.ReplaceAll(bytes.ReplaceAll(raw, []byte(","), []byte("\t")), []byte("\n"), []byte("\r\n"))
+	cases := []struct {
+		file  string
+		data  []byte
+		extra string
+	}{
+		{"d.csv", raw, ""},
+		{"d.csv", semicolonCopy(t, raw), "  delimiter: semicolon\n  decimal: comma\n"},
+		{"d.csv", append([]byte("\xef\xbb\xbf"), tab...), "  delimiter: tab\n"},
+		{"d.xlsx", toWorkbook(t, raw), "  sheet: survey\n  header_row: 3\n"},
+		{"d.xlsx", toWorkbook(t, empty), "  sheet: survey\n  header_row: 3\n"},
+		{"d.parquet", toParquet(t, empty), ""},
+		{"d.parquet", dictParquet(t, empty), ""},
+	}
+	var want []byte
+	for i, c := range cases {
+		dir := t.TempDir()
+		if err := os.WriteFile(filepath.Join(dir, c.file), c.data, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		// The plan's lines must not move between the cases: the dialect
+		// keys take two lines, comments where there are none.
+		extra := c.extra + strings.Repeat("  # -\n", 2-strings.Count(c.extra, "\n"))
+		got := planDecisions(t, dir, c.file, c.data, formatsPlan(t, dir, c.file, extra))
+		if i == 0 {
+			want = got
+			if !bytes.Contains(got, []byte(`"grp.south"`)) || !bytes.Contains(got, []byte(`"column": "grp"`)) {
+				t.Fatalf("the plan did not fit the levels or drop rows missing grp:\n%s", got)
+			}
+			continue
+		}
+		sameDecisions(t, fmt.Sprintf("case 1 and case %d (%s)", i+1, c.file), want, got)
+	}
+}
+
+// dictParquet writes the data as a Parquet file with typed columns: the
+// outcome and grp dictionary-encoded strings (grp optional), x an
+// optional double, z a required double.
+func dictParquet(t *testing.T, raw []byte) []byte {
+	t.Helper()
+	type row struct {
+		Outcome string   `parquet:"outcome,dict"`
+		X       *float64 `parquet:"x,optional"`
+		Z       float64  `parquet:"z"`
+		Grp     *string  `parquet:"grp,optional,dict"`
+	}
+	var rows []row
+	for _, ln := range strings.Split(strings.TrimSpace(string(raw)), "\n")[1:] {
+		f := strings.Split(ln, ",")
+		r := row{Outcome: f[0]}
+		if f[1] != "" {
+			x, _ := strconv.ParseFloat(f[1], 64)
+			r.X = &x
+		}
+		r.Z, _ = strconv.ParseFloat(f[2], 64)
+		if f[3] != "" {
+			r.Grp = &f[3]
+		}
+		rows = append(rows, r)
+	}
+	var b bytes.Buffer
+	if err := parquet.Write(&b, rows); err != nil {
+		t.Fatal(err)
+	}
+	return b.Bytes()
 }
