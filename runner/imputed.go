@@ -371,10 +371,14 @@ func pooledTestBlock(an *Analysis, or *OutcomeResult, perSet [][]*FitEntry, appr
 		case fit.TestBrant:
 			if cumLogit {
 				tb.Global = append(tb.Global, or.pooledBrant(fopt).test(allColumns(or.Terms)))
+			} else {
+				tb.Global = append(tb.Global, missingTest(kind, cumLogitOnly))
 			}
 		case fit.TestWolfeGould:
 			if cumLogit {
 				tb.Global = append(tb.Global, pooledWolfeGould(or, fopt))
+			} else {
+				tb.Global = append(tb.Global, missingTest(kind, cumLogitOnly))
 			}
 		}
 	}

@@ -17,6 +17,11 @@ func missingTest(kind fit.TestKind, reason string) fit.Test {
 	return fit.Test{Name: kind.String(), Reason: reason}
 }
 
+// cumLogitOnly is why a Brant or Wolfe-Gould test the plan asks for has no
+// value for another approach or link: the test is shown as not computed,
+// with this reason, rather than left out without a word.
+const cumLogitOnly = "defined for the cumulative logit model only"
+
 // testBlock runs the parallel-lines tests the plan asks for and the nested
 // likelihood-ratio tests of one approach and link.
 func testBlock(an *Analysis, or *OutcomeResult, approach fit.Comparison, link fit.Link) *TestBlock {
@@ -31,6 +36,8 @@ func testBlock(an *Analysis, or *OutcomeResult, approach fit.Comparison, link fi
 		if sw && kind != fit.TestWald {
 			if kind == fit.TestLR || kind == fit.TestScore || cumLogit {
 				tb.Global = append(tb.Global, missingTest(kind, pseudoReason))
+			} else {
+				tb.Global = append(tb.Global, missingTest(kind, cumLogitOnly))
 			}
 			continue
 		}
@@ -46,18 +53,22 @@ func testBlock(an *Analysis, or *OutcomeResult, approach fit.Comparison, link fi
 				tb.Global = append(tb.Global, missingTest(fit.TestWald, "the nonparallel model has no usable fit"))
 			}
 		case fit.TestBrant:
-			if cumLogit {
-				brant = fit.Brant(d, fopt)
-				t := brant.Omnibus
-				if !brant.OK {
-					t = missingTest(fit.TestBrant, brant.Reason)
-				}
-				tb.Global = append(tb.Global, t)
+			if !cumLogit {
+				tb.Global = append(tb.Global, missingTest(kind, cumLogitOnly))
+				break
 			}
+			brant = fit.Brant(d, fopt)
+			t := brant.Omnibus
+			if !brant.OK {
+				t = missingTest(fit.TestBrant, brant.Reason)
+			}
+			tb.Global = append(tb.Global, t)
 		case fit.TestWolfeGould:
-			if cumLogit {
-				tb.Global = append(tb.Global, fit.WolfeGould(d, fopt))
+			if !cumLogit {
+				tb.Global = append(tb.Global, missingTest(kind, cumLogitOnly))
+				break
 			}
+			tb.Global = append(tb.Global, fit.WolfeGould(d, fopt))
 		}
 	}
 	for _, term := range or.Terms {
