@@ -18,6 +18,7 @@ func (d *decoder) check(p *Plan) {
 			d.checkTerms(p, o.Terms, itemPath("outcomes", i)+".predictors")
 		}
 	}
+	d.checkSubsetLevels(p)
 	d.checkDataOptions(p)
 	d.checkImputation(p)
 	d.checkApproaches(p)

@@ -349,6 +349,57 @@ func (p *Plan) hasTerm(name string) bool {
 	return false
 }
 
+// checkSubsetLevels refuses a subset that leaves out levels of a
+// categorical predictor the plan cannot then use: its reference level, a
+// level whose column the plan keeps (unobserved: refuse), or all levels
+// but one. No row used can have such a level, so the run would stop on
+// the data; said here, at the subset condition, before any data.
+func (d *decoder) checkSubsetLevels(p *Plan) {
+	if !d.clean("subset") || !d.clean("categorical") {
+		return
+	}
+	for _, col := range p.SourceColumns() {
+		c := p.categorical(col)
+		if c == nil || len(c.Levels) < 2 {
+			continue
+		}
+		for _, sc := range p.Subset {
+			for _, v := range sc.Values {
+				if sc.Column != col || slices.Contains(c.Levels, v) {
+					continue
+				}
+				if l := slices.IndexFunc(c.Levels, func(l string) bool { return data.LooseText(l) == data.LooseText(v) }); l >= 0 {
+					d.errAt(sc.Key, "names %s, which is not a level of %s but is written like its level %s (%s.levels): a misspelt value keeps or drops other rows than meant; write the level as declared", quote(v), col, quote(c.Levels[l]), c.Key)
+					return
+				}
+			}
+		}
+		var kept []string
+		for _, l := range c.Levels {
+			sc := excludedBy(p, col, l)
+			switch {
+			case sc == nil:
+				kept = append(kept, l)
+			case l == c.Reference:
+				d.errAt(sc.Key, "leaves out the rows of level %s of %s, the reference level (%s): no row used has it; choose another reference", quote(l), col, c.Key)
+				return
+			case c.Unobserved != design.UnobservedDrop:
+				d.errAt(sc.Key, "leaves out the rows of level %s of %s, which %s declares: no row used has it, so its column cannot be estimated; remove the level from %s.levels (rows outside the subset may keep it) or set %s.unobserved: drop", quote(l), col, c.Key, c.Key, c.Key)
+				return
+			}
+		}
+		if len(kept) < 2 {
+			first := slices.IndexFunc(c.Levels, func(l string) bool { return !slices.Contains(kept, l) })
+			at := excludedBy(p, col, c.Levels[first]).Key
+			if len(kept) == 1 {
+				d.errAt(at, "leaves only one level (%s) of %s among the rows used: a categorical predictor needs two; drop %s from the predictors of this subset", quote(kept[0]), col, col)
+			} else {
+				d.errAt(at, "leaves out every level of %s (%s): no row used can have one", col, strings.Join(c.Levels, ", "))
+			}
+		}
+	}
+}
+
 // Subset conditions: the key names the comparison.
 var subsetOps = []struct{ key, op string }{
 	{"less_than", "<"}, {"at_most", "<="}, {"greater_than", ">"}, {"at_least", ">="},

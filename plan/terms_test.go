@@ -94,3 +94,26 @@ func TestBadTerms(t *testing.T) {
 		t.Log(err)
 	}
 }
+
+// A subset that leaves out levels of a categorical predictor is refused at
+// the condition when no row used could then serve the design: the
+// reference level, a level whose column is kept, all levels but one; a
+// value written like a level but not as declared is refused as a slip.
+// Leaving out a level whose column is dropped (unobserved: drop) is fine.
+func TestSubsetLeavesOutLevels(t *testing.T) {
+	for _, c := range []struct{ subset, want string }{
+		{"{column: site, one_of: [north, south]}", `p.yaml:5:5: subset[1]: leaves out the rows of level "east" of site, the reference level (categorical.site): no row used has it; choose another reference`},
+		{"{column: site, one_of: [east]}", `p.yaml:5:5: subset[1]: leaves only one level ("east") of site among the rows used: a categorical predictor needs two; drop site from the predictors of this subset`},
+		{"{column: site, one_of: [north, east, South]}", `p.yaml:5:5: subset[1]: names "South", which is not a level of site but is written like its level "south" (categorical.site.levels)`},
+		{"{column: treat, none_of: [drug]}", `p.yaml:5:5: subset[1]: leaves out the rows of level "drug" of treat, which categorical.treat declares: no row used has it, so its column cannot be estimated`},
+	} {
+		src := strings.Replace(termsPlanSrc, "{column: site, one_of: [north, east]}", c.subset, 1)
+		_, err := Parse([]byte(src), "p.yaml")
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%s: got %v, want %s", c.subset, err, c.want)
+		}
+	}
+	if _, err := Parse([]byte(termsPlanSrc), "p.yaml"); err != nil {
+		t.Errorf("a level left out whose column is dropped: %v", err)
+	}
+}

@@ -114,9 +114,9 @@ func termItems(dir string) []badInput {
 		{id: "T10", name: "an empty term name (ordplan fit |as=)", setup: writeTermsData, code: 1,
 			args: fitArgs(cat, "--predictors", "site|levels=north/east/south|as=,x"),
 			want: []string{`--predictors: predictor 1 ("site|levels=north/east/south|as="): |as= names the term: give a name (as=name)`}},
-		{id: "T11", name: "a subset value written otherwise than the data write it", args: []string{"run"}, setup: writeTermsData,
+		{id: "T11", name: "a subset value written otherwise than the data write it", args: []string{"check", "--no-data"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: site, one_of: [north, East]}\npredictors:"), code: 1,
-			want: []string{`cat.csv: column "site": the subset condition site in {north, East} names the value "East", which no row of the column holds and which is not a declared level; the column holds "east", written differently: a misspelt value keeps or drops other rows than meant, write it as the data do (plan T11.yaml, outcome "y", plan key subset[0])`}},
+			want: []string{`T11.yaml:7:5: subset[0]: names "East", which is not a level of site but is written like its level "east" (categorical.site.levels): a misspelt value keeps or drops other rows than meant; write the level as declared`}},
 		{id: "T12", name: "a subset value that no row has and that is like none of the column's values", args: []string{"run"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: site, none_of: [west]}\npredictors:"), code: 0,
 			check: func(t *testing.T, dir, out, errs string) {
@@ -128,5 +128,8 @@ func termItems(dir string) []badInput {
 		{id: "T13", name: "a level compared by equal_to (a number comparison)", args: []string{"check"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: site, equal_to: north}\npredictors:"), code: 1,
 			want: []string{`T13.yaml:7:30: subset[0].equal_to: want a number, got string "north": equal_to compares numbers; to compare the text, write one_of: [north]`}},
+		{id: "T14", name: "a subset that leaves out a declared level", args: []string{"check", "--no-data"}, setup: writeTermsData,
+			plan: termsEdit("predictors:", "subset:\n  - {column: site, none_of: [south]}\npredictors:"), code: 1,
+			want: []string{`T14.yaml:7:5: subset[0]: leaves out the rows of level "south" of site, which categorical.site declares: no row used has it, so its column cannot be estimated; remove the level from categorical.site.levels (rows outside the subset may keep it) or set categorical.site.unobserved: drop`}},
 	}
 }

@@ -644,12 +644,12 @@ func (r *reader) unknownListValues(t *rowTally, d *Dataset) error {
 			}
 			var near []string
 			for h := range seen {
-				if h != "" && !r.missing[h] && looseText(h) == looseText(v) {
+				if h != "" && !r.missing[h] && LooseText(h) == LooseText(v) {
 					near = append(near, h)
 				}
 			}
 			for _, h := range declared {
-				if looseText(h) == looseText(v) && !slices.Contains(near, h) {
+				if LooseText(h) == LooseText(v) && !slices.Contains(near, h) {
 					near = append(near, h)
 				}
 			}
@@ -669,9 +669,9 @@ func (r *reader) unknownListValues(t *rowTally, d *Dataset) error {
 	return nil
 }
 
-// looseText is s in lower case with only its letters and digits: two
+// LooseText is s in lower case with only its letters and digits: two
 // spellings of one value ("Cul-de-sac", "cul_de_sac") compare equal.
-func looseText(s string) string {
+func LooseText(s string) string {
 	var b strings.Builder
 	for _, c := range strings.ToLower(s) {
 		if unicode.IsLetter(c) || unicode.IsDigit(c) {
