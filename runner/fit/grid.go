@@ -25,6 +25,8 @@ type shared struct {
 	des     *design
 	subOnce sync.Once
 	sub     *design
+	sdOnce  sync.Once
+	sd, m3  []float64 // spread
 	mu      sync.Mutex
 	fitted  map[string]gridFit // by modelKey, options of the auxiliary fits
 }
@@ -53,6 +55,17 @@ func (sh *shared) design(d *Data) *design {
 func (sh *shared) subsample(d *Data, o Options) *design {
 	sh.subOnce.Do(func() { sh.sub = sh.design(d).subsample(d.J, o.subsampleAbove()) })
 	return sh.sub
+}
+
+// spread is the predictors' standard deviations and third absolute
+// central moments (spreadOf), made once (read, not written, by the fits
+// that share them).
+func (sh *shared) spread(d *Data) (sd, m3 []float64) {
+	sh.sdOnce.Do(func() {
+		s, m3 := spreadOf(d, true)
+		sh.sd, sh.m3 = s.SD(), m3
+	})
+	return sh.sd, sh.m3
 }
 
 // fit is Fit of m on the valid data d with the options o of an auxiliary

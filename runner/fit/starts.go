@@ -40,8 +40,8 @@ func newAuxiliary(d *Data, m Model, ly *layout, opt Options, sh *shared) (*auxil
 	// The auxiliary fits keep the subsample threshold: a grid shares one
 	// subsample and hands its partial fit over as this one (FitGrid).
 	o := Options{MaxIter: opt.MaxIter, Workers: opt.Workers, SubsampleAbove: opt.SubsampleAbove}
-	spread, m3 := spreadOf(d, true)
-	a := &auxiliary{sd: spread.SD(), partM: partM}
+	sd, m3 := sh.spread(d)
+	a := &auxiliary{sd: sd, partM: partM}
 	pLy, err := newLayout(partM, d.J, d.Predictors)
 	if err != nil {
 		return nil, err
