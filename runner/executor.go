@@ -61,6 +61,12 @@ func ExecuteJobFiles(paths []string, job Job) (*fit.Result, error) {
 	if err != nil {
 		return nil, err
 	}
+	return ExecuteJobOn(ds, job)
+}
+
+// ExecuteJobOn fits one job on its data as read (with job.DataOptions);
+// the fit does not change ds, so several jobs may share one read.
+func ExecuteJobOn(ds *data.Dataset, job Job) (*fit.Result, error) {
 	m, err := job.Spec.Model()
 	if err != nil {
 		return nil, err

@@ -236,3 +236,47 @@ func TestExecutePartsNoJobs(t *testing.T) {
 		t.Fatalf("got %v, %v", replies, err)
 	}
 }
+
+// The fits a run on parts makes on the coordinator (here, under expected
+// information) share one read of the parts per data options, and give
+// each the fit of the parts read as one data set, as before (General
+// Social Survey extract, Long 1997).
+func TestExecutePartsReadsOnceForFitsHere(t *testing.T) {
+	parts := splitCSV(t, filepath.Join(refDir, "gsswarm.csv"), 3)
+	var paths []string
+	for _, p := range parts {
+		paths = append(paths, p.Path)
+	}
+	dopt := data.Options{Outcome: "warm", Predictors: gssPredictors}
+	var jobs []runner.Job
+	for i, s := range []runner.Spec{
+		{Approach: fit.Cumulative, Link: fit.Logit, Predictors: gssPredictors},
+		{Approach: fit.Stage, Link: fit.Probit, Predictors: gssPredictors},
+		{Approach: fit.Adjacent, Link: fit.Logit, Predictors: gssPredictors, Nonparallel: []string{"male"}},
+	} {
+		jobs = append(jobs, runner.Job{Outcome: "warm", Index: i, ID: "job" + string(rune('0'+i)), Spec: s, DataOptions: dopt,
+			FitOptions: fit.Options{Covariance: fit.Expected, Workers: 1}})
+	}
+	reads := 0
+	defer func(f func([]string, data.Options) (*data.Dataset, error)) { loadParts = f }(loadParts)
+	loadParts = func(p []string, o data.Options) (*data.Dataset, error) {
+		reads++
+		return data.LoadFiles(p, o)
+	}
+	replies, err := (&Coordinator{}).executeParts(jobs, paths, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if reads != 1 {
+		t.Errorf("the parts were read %d times for %d fits made here, want once", reads, len(jobs))
+	}
+	for i, r := range replies {
+		want, err := runner.ExecuteJobFiles(paths, jobs[i])
+		if err != nil || r.Err != "" || r.Result == nil {
+			t.Fatalf("%s: %v %s", jobs[i].ID, err, r.Err)
+		}
+		if r.Result.LogLik != want.LogLik || !slices.Equal(r.Result.Estimates, want.Estimates) || !slices.Equal(r.Result.StdErrors, want.StdErrors) {
+			t.Errorf("%s: %v %v, each read on its own %v %v", jobs[i].ID, r.Result.LogLik, r.Result.Estimates, want.LogLik, want.Estimates)
+		}
+	}
+}

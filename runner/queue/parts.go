@@ -58,6 +58,7 @@ func (co *Coordinator) executeParts(jobs []runner.Job, paths []string, finished 
 		dopt  data.Options
 	}
 	wholes := map[string]*described{} // by data options
+	read := partsRead{}
 	replies := make([]*Reply, len(jobs))
 	over := 0
 	for i, j := range jobs {
@@ -70,7 +71,7 @@ func (co *Coordinator) executeParts(jobs []runner.Job, paths []string, finished 
 			if co.log != nil {
 				fmt.Fprintf(co.log, "queue: %s: %s fitted here, not over the parts: %s\n", outcome, j.ID, why)
 			}
-			res, err := runner.ExecuteJobFiles(paths, j)
+			res, err := read.fit(paths, j)
 			r.Result = res
 			if err != nil {
 				r.Result, r.Err = nil, err.Error()
@@ -117,4 +118,30 @@ func (co *Coordinator) executeParts(jobs []runner.Job, paths []string, finished 
 		fmt.Fprintf(co.log, "queue: %s: %d of %d fits summed over %d parts by the workers, in %.1fs\n", outcome, over, len(jobs), len(paths), time.Since(start).Seconds())
 	}
 	return replies, nil
+}
+
+// loadParts reads data held as parts (a variable for the tests, which
+// count the reads).
+var loadParts = data.LoadFiles
+
+// partsRead keeps the parts read as one data set for the jobs fitted on
+// the coordinator, by data options: the jobs of an outcome share one
+// read (they were read again for each job), and a fit does not change
+// the rows (runner.ExecuteJobOn).
+type partsRead map[string]*data.Dataset
+
+// fit fits job j here on the parts, read once for its data options.
+func (pr partsRead) fit(paths []string, j runner.Job) (*fit.Result, error) {
+	key, err := json.Marshal(j.DataOptions)
+	if err != nil {
+		return nil, err
+	}
+	ds, ok := pr[string(key)]
+	if !ok {
+		if ds, err = loadParts(paths, j.DataOptions); err != nil {
+			return nil, err
+		}
+		pr[string(key)] = ds
+	}
+	return runner.ExecuteJobOn(ds, j)
 }
