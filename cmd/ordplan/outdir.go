@@ -6,11 +6,14 @@ import (
 	"encoding/json"
 	"fmt"
 	"os"
+	"os/signal"
 	"path/filepath"
+	"regexp"
 	"slices"
 	"sort"
 	"strconv"
 	"strings"
+	"syscall"
 
 	"ordplan/runner"
 )
@@ -63,14 +66,38 @@ func (l *outputLock) Unlock() {
 	}
 }
 
-// writeAll writes every file into dir all or nothing: each goes to a new
+// writeAll writes every file into dir all or nothing (writeFiles). An
+// interrupt (Ctrl-C, SIGTERM) that arrives meanwhile is held until the
+// files are written and then delivered again, so that it stops the
+// program with the folder complete, never between two renames or with
+// temporary files left behind.
+func writeAll(dir string, names []string, files map[string][]byte) error {
+	held := make(chan os.Signal, 1)
+	signal.Notify(held, os.Interrupt, syscall.SIGTERM)
+	err := writeFiles(dir, names, files)
+	signal.Stop(held)
+	select {
+	case s := <-held:
+		if p, perr := os.FindProcess(os.Getpid()); perr == nil {
+			p.Signal(s)
+		}
+	default:
+	}
+	return err
+}
+
+// afterTemp, when set (by tests), is called after each temporary file is
+// written.
+var afterTemp func()
+
+// writeFiles writes every file into dir all or nothing: each goes to a new
 // temporary file in dir (created exclusively, so no symlink is followed),
 // is synced, and only when all are written are they renamed into place
 // (entries under the names that are not regular files were refused
 // before, notPlainFiles).
 // On a failure before the renames the folder keeps what it had. names
 // gives the order of the renames; the last one marks a complete run.
-func writeAll(dir string, names []string, files map[string][]byte) error {
+func writeFiles(dir string, names []string, files map[string][]byte) error {
 	for _, n := range names {
 		if n == "" || n != filepath.Base(n) || strings.HasPrefix(n, ".") {
 			return fmt.Errorf("output file name %q is not a plain file name", n)
@@ -100,6 +127,9 @@ func writeAll(dir string, names []string, files map[string][]byte) error {
 		}
 		if err != nil {
 			return fmt.Errorf("writing %s: %w (the previous outputs in %s are unchanged)", filepath.Join(dir, n), err, dir)
+		}
+		if afterTemp != nil {
+			afterTemp()
 		}
 	}
 	for i, n := range names {
@@ -147,6 +177,7 @@ func claimOutput(dir, command string, fixed []string) (*outputLock, error) {
 		lock.Unlock()
 		return nil, err
 	}
+	removeTemporaries(dir)
 	if mine := usersFiles(dir, slices.Concat(fixed, []string{recordFile}), nil); len(mine) > 0 {
 		lock.Unlock()
 		return nil, usersFilesError(dir, mine)
@@ -214,6 +245,27 @@ func writeOutputs(dir string, files map[string][]byte, record func(map[string][]
 		os.Remove(filepath.Join(dir, n))
 	}
 	return nil
+}
+
+// tempName matches the temporary files writeFiles makes (os.CreateTemp
+// with the pattern "."+name+".tmp-*": a dot, the output's name, ".tmp-"
+// and digits).
+var tempName = regexp.MustCompile(`^\.[^/]+\.tmp-[0-9]+$`)
+
+// removeTemporaries removes the temporary files an earlier run in dir left
+// when it was killed (SIGKILL, a power cut) before it renamed them into
+// place: regular files named as writeFiles names them. The caller holds
+// the folder's lock, so no run is writing them.
+func removeTemporaries(dir string) {
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		return
+	}
+	for _, e := range entries {
+		if e.Type().IsRegular() && tempName.MatchString(e.Name()) {
+			os.Remove(filepath.Join(dir, e.Name()))
+		}
+	}
 }
 
 // notPlainFiles refuses entries in dir under an output's name that are not

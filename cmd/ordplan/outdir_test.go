@@ -2,9 +2,12 @@ package main
 
 import (
 	"os"
+	"os/signal"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
+	"time"
 )
 
 // A write that fails for one file leaves every file of the previous run as
@@ -144,5 +147,71 @@ func TestClaimOutputChecksFixedNames(t *testing.T) {
 	l.Unlock()
 	if mine := usersFiles(dir, []string{"report.md"}, map[string][]byte{"report.md": []byte("same")}); len(mine) != 0 {
 		t.Errorf("a file with the bytes the run writes: %v", mine)
+	}
+}
+
+// An interrupt that arrives while the outputs are written is held until
+// every file is in place, then delivered again: the folder is complete and
+// no temporary file is left.
+func TestInterruptHeldDuringWrite(t *testing.T) {
+	dir := t.TempDir()
+	got := make(chan os.Signal, 4)
+	signal.Notify(got, os.Interrupt) // so that the interrupt does not stop the test
+	defer signal.Stop(got)
+	sent := false
+	afterTemp = func() {
+		if !sent {
+			sent = true
+			p, _ := os.FindProcess(os.Getpid())
+			p.Signal(os.Interrupt)
+			time.Sleep(50 * time.Millisecond) // let it arrive while writing
+		}
+	}
+	defer func() { afterTemp = nil }()
+	files := map[string][]byte{"a.md": []byte("a\n"), "b.md": []byte("b\n"), "run.json": []byte("{}\n")}
+	if err := writeAll(dir, []string{"a.md", "b.md", "run.json"}, files); err != nil {
+		t.Fatal(err)
+	}
+	for n, c := range files {
+		if b, err := os.ReadFile(filepath.Join(dir, n)); err != nil || string(b) != string(c) {
+			t.Errorf("%s: %q %v", n, b, err)
+		}
+	}
+	if left, _ := filepath.Glob(filepath.Join(dir, ".*.tmp-*")); len(left) > 0 {
+		t.Errorf("temporary files left: %v", left)
+	}
+	// The interrupt itself, and the one delivered again after the write.
+	for i := 0; i < 2; i++ {
+		select {
+		case <-got:
+		case <-time.After(5 * time.Second):
+			t.Fatalf("interrupt %d not delivered", i+1)
+		}
+	}
+}
+
+// The temporary files a killed run left in its output folder are removed
+// when the next run claims it; other files that merely look alike stay.
+func TestClaimRemovesTemporaries(t *testing.T) {
+	dir := t.TempDir()
+	stale := []string{".report.md.tmp-123456", ".table-models-y.csv.tmp-9"}
+	kept := []string{".notes.tmp-draft", "report.md.tmp-1", ".tmp-12"}
+	for _, n := range append(slices.Clone(stale), kept...) {
+		os.WriteFile(filepath.Join(dir, n), []byte("x"), 0o644)
+	}
+	l, err := claimOutput(dir, "run", []string{"report.md"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	l.Unlock()
+	for _, n := range stale {
+		if _, err := os.Lstat(filepath.Join(dir, n)); err == nil {
+			t.Errorf("%s left", n)
+		}
+	}
+	for _, n := range kept {
+		if _, err := os.Lstat(filepath.Join(dir, n)); err != nil {
+			t.Errorf("%s removed: %v", n, err)
+		}
 	}
 }
