@@ -286,3 +286,60 @@ func TestOutOfReachAdversarial(t *testing.T) {
 		t.Error("without the allowance no claim fails: the check cannot tell a margin too small")
 	}
 }
+
+// TestOutOfReachOnlyLogit: no link but the logit bounds the third
+// derivatives of the log-likelihood by the second (outOfReach), and the
+// approximation is not trusted there: with the probit link no start is
+// abandoned on the approximation alone, and the search's maximum is the one
+// every start run to its end gives. With ORDPLAN_REACH_LONG=1 (.ci/run) on
+// 200000 rows of simulated data (ridgeData), where the cumulative probit
+// model's starts drawn with phi[2] = 1 and phi[4] = 1 have maxima of the
+// approximation 727.7 below the best even after an allowance of
+// 4 Q sqrt(Q / N) (N the rows: an allowance read off logit fits), yet run
+// on the data they reach the best; on 20000 rows (the default) they end
+// below it.
+func TestOutOfReachOnlyLogit(t *testing.T) {
+	long := os.Getenv("ORDPLAN_REACH_LONG") != ""
+	n := 20000
+	if long {
+		n = 200000
+	}
+	d := ridgeData(n)
+	m := Model{Comparison: Cumulative, Link: Probit, Effects: make([]Effect, 10)}
+	m.Effects[0], m.Effects[1] = Constrained, Constrained
+	on, err := Fit(d, m, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	off, err := Fit(d, m, Options{KeepStarts: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var tally startsTally
+	tally.compare(t, fmt.Sprintf("ridgeData(%d)/cumulative/probit", n), on, off)
+	ly, err := newLayout(m, d.J, d.Predictors)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sh := &shared{fitted: map[string]gridFit{}}
+	aux, err := newAuxiliary(d, m, ly, Options{}, sh)
+	if err != nil || !aux.screen || aux.sur.logit {
+		t.Fatalf("auxiliary fits: %v (screened %v)", err, aux != nil && aux.screen)
+	}
+	wrong := 0
+	for i, s := range aux.starts(d, m, ly, Options{}) {
+		sur := aux.sur.maximize(s.theta)
+		if _, out := aux.sur.outOfReach(sur, on.LogLik); out || on.Starts[i].outOfReach != 0 {
+			t.Errorf("%s: out of reach on the approximation with the probit link", s.label)
+		}
+		Q, _ := aux.sur.value(sur)
+		claim := Q - 4*Q*math.Sqrt(Q/d.NObs()) - (aux.sur.peak - on.LogLik)
+		t.Logf("%s: an allowance of 4 Q sqrt(Q / N) would put it %.4g below the best; run to its end %.6f (reached the best %v)", s.label, claim, off.Starts[i].LogLik, off.Starts[i].ReachedBest)
+		if claim > 0 && off.Starts[i].ReachedBest {
+			wrong++
+		}
+	}
+	if long && wrong == 0 {
+		t.Error("no start that an allowance read off logit fits puts out of reach reaches the best: the test shows nothing")
+	}
+}

@@ -207,9 +207,10 @@ func (s *surrogate) curvature() float64 {
 // partial model's at beta = h(theta), l(beta) = sum_i w_i l_i(eta_i) with
 // eta_i = x_i' beta, and the approximation is its expansion to second
 // order at the partial maximum, ll_partial - Q, Q = 1/2 sum_i w_i v_i d_i^2
-// (v_i = -l_i”, d_i the change of row i's linear predictor). The error is
-// led by the cubic term E = 1/6 sum_i w_i l_i”' d_i^3. The logit's
-// derivatives obey |l_i”'| <= R v_i: for a binary comparison
+// (v_i = -l_i^(2), minus the second derivative; d_i the change of row i's
+// linear predictor). The error is led by the cubic term
+// E = 1/6 sum_i w_i l_i^(3) d_i^3. The logit's derivatives obey
+// |l_i^(3)| <= R v_i: for a binary comparison
 // |p(1-p)(1-2p)| <= p(1-p), R = 1; a row of the cumulative and adjacent
 // comparisons depends on the linear predictors of two or more equations,
 // whose changes can add, and R = 2 is taken for every logit model (for
@@ -240,12 +241,14 @@ func (s *surrogate) curvature() float64 {
 // allowance is below 2Q/3. A start is out of reach when ll_partial - Q(sur)
 // plus the allowance is below the best, and only while the allowance is at
 // most Q/2 (beyond, the cubic term no longer leads). No link other than the
-// logit bounds l”' by l” (the probit's ratio grows like |eta|, the
-// Cauchy's log-likelihood is not concave): those models abandon no start on
-// the approximation alone. TestOutOfReachStartsEndBelow (references, ridge
-// data) and TestOutOfReachAdversarial (rare 0/1 and heavy-tailed
-// constrained predictors, several maxima, weights, data just above the
-// screening threshold) run every such start to its end.
+// logit bounds l^(3) by l^(2) (the probit's ratio grows like |eta|, the
+// cloglog's and loglog's exponentially, the Cauchy's log-likelihood is not
+// concave): those models abandon no start on the approximation alone
+// (TestOutOfReachOnlyLogit: probit starts that an allowance read off logit
+// fits put far below the best reach it). TestOutOfReachStartsEndBelow
+// (references, ridge data) and TestOutOfReachAdversarial (rare 0/1 and
+// heavy-tailed constrained predictors, several maxima, weights, data just
+// above the screening threshold) run every such start to its end.
 func (s *surrogate) outOfReach(sur []float64, best float64) (float64, bool) {
 	W := s.curvature()
 	if math.IsInf(best, -1) || !s.logit || !(W > 0) || math.IsInf(W, 1) {
