@@ -3,6 +3,7 @@ package data
 import (
 	"bytes"
 	"fmt"
+	"regexp"
 	"strings"
 	"unicode/utf8"
 )
@@ -82,6 +83,10 @@ func (d Dialect) number(cell string) (float64, string) {
 	if !d.DecimalComma {
 		if strings.ContainsRune(cell, ',') && isNumberLike(cell) {
 			if _, msg := parseNumber(strings.Replace(cell, ",", ".", 1)); msg == "" && strings.Count(cell, ",") == 1 {
+				if i := strings.IndexByte(cell, ','); thousands(cell[:i], cell[i+1:]) {
+					// 1,234: a decimal comma, or a thousands separator.
+					return 0, "value " + quoteCell(cell) + " is not a number (it has a comma: if it is a decimal comma, set data.decimal: comma, or --decimal comma; if it separates thousands, write the number without it, such as " + cell[:i] + cell[i+1:] + ")"
+				}
 				return 0, "value " + quoteCell(cell) + " is not a number (it has a decimal comma; if the file writes numbers that way, set data.decimal: comma, or --decimal comma)"
 			}
 		}
@@ -98,6 +103,16 @@ func (d Dialect) number(cell string) (float64, string) {
 		return 0, strings.Replace(msg, quoteCell(strings.Replace(cell, ",", ".", 1)), quoteCell(cell), 1)
 	}
 	return v, ""
+}
+
+// thousands reports whether a number written whole,frac could be whole
+// thousands and frac more: frac is three digits, whole one to three digits
+// (after a sign) that do not start with 0.
+func thousands(whole, frac string) bool {
+	whole = strings.TrimLeft(strings.TrimSpace(whole), "+-")
+	frac = strings.TrimSpace(frac)
+	digits := func(s string) bool { return strings.Trim(s, "0123456789") == "" }
+	return len(frac) == 3 && digits(frac) && len(whole) >= 1 && len(whole) <= 3 && digits(whole) && whole[0] != '0'
 }
 
 // checkUTF8 refuses text that is not UTF-8, from the first bytes read (a
@@ -154,10 +169,14 @@ func SuggestDialect(raw []byte, d Dialect) string {
 		want.DelimiterWord(), want.DecimalWord(), d.DelimiterWord(), d.DecimalWord(), strings.Join(keys, " and "), want.DelimiterWord(), want.DecimalWord())
 }
 
+// quotedDecimalComma is a quoted number with a decimal comma, as a
+// comma-separated file must write it.
+var quotedDecimalComma = regexp.MustCompile(`"\s*[-+]?[0-9]*,[0-9]+\s*"`)
+
 // DetectDialect is the dialect the first lines of a CSV file (its bytes)
 // look written in: the delimiter the header holds most of (comma when it
-// holds none), and a decimal comma when the cells of a file not separated
-// by commas write numbers as 1,5 and none as 1.5.
+// holds none), and a decimal comma when the cells write numbers as 1,5
+// (quoted in a comma-separated file) and none as 1.5.
 func DetectDialect(raw []byte) Dialect {
 	d, _ := guessDialect(raw, Dialect{})
 	return d
@@ -190,11 +209,15 @@ func guessDialect(raw []byte, d Dialect) (Dialect, bool) {
 			want.Delimiter = best
 		}
 	}
-	// The decimal mark: cells like 1,5 in a file whose delimiter is not a
-	// comma, or cells with a point and no comma under a decimal comma.
-	if want.delim() != ',' {
+	// The decimal mark: cells like 1,5 (quoted, when the delimiter is a
+	// comma), or cells with a point and no comma under a decimal comma.
+	{
 		commas, points := 0, 0
 		for _, ln := range lines[1:min(len(lines), 200)] {
+			if want.delim() == ',' {
+				commas += len(quotedDecimalComma.FindAllString(ln, -1))
+				ln = quotedDecimalComma.ReplaceAllString(ln, "")
+			}
 			for _, cell := range strings.Split(ln, string(want.delim())) {
 				cell = strings.Trim(strings.TrimSpace(cell), `"`)
 				if !isNumberLike(cell) {

@@ -57,6 +57,13 @@ func TestSuggestDialect(t *testing.T) {
 		{"y;a\n1;0.5\n", Dialect{Delimiter: ';', DecimalComma: true}, "set decimal: point under data"},
 		{"y,a\n1,0.5\n", Dialect{}, ""},
 		{"y\n1\n2\n", Dialect{}, ""},
+		// A comma-separated file with decimal points read as semicolon and
+		// decimal comma: both keys (the decimal mark was kept as read).
+		{"y,a,b\n1,0.5,2\n2,1.5,3\n", Dialect{Delimiter: ';', DecimalComma: true}, "looks comma-separated with a decimal point, but is read as semicolon-separated with a decimal comma: set delimiter: comma and decimal: point under data (ordplan fit: --delimiter comma --decimal point)"},
+		{"y,a\n1,0.5\n", Dialect{DecimalComma: true}, "set decimal: point under data"},
+		// Quoted decimal commas in a comma-separated file.
+		{"y,a\n1,\"0,5\"\n2,\"1,25\"\n", Dialect{}, "looks comma-separated with a decimal comma, but is read as comma-separated with a decimal point: set decimal: comma under data"},
+		{"y,a\n1,\"0,5\"\n2,\"1,25\"\n", Dialect{DecimalComma: true}, ""},
 	} {
 		got := SuggestDialect([]byte(c.file), c.d)
 		if c.want == "" && got != "" || !strings.Contains(got, c.want) {
@@ -107,5 +114,21 @@ func TestNewRowsFollowTheDialect(t *testing.T) {
 	comma := write("comma.csv", "id,a,site\nr1,\"0,5\",north\n")
 	if _, err := LoadRowsMissing(comma, []string{"a", "site"}, levels, "", nil, nil, Dialect{}); err == nil || !strings.Contains(err.Error(), "decimal comma") {
 		t.Errorf("a decimal comma under the default dialect: %v", err)
+	}
+}
+
+// A number with one comma under a decimal point: the message offers the
+// decimal comma, and for 1,234 a thousands separator too.
+func TestCommaInNumberMessage(t *testing.T) {
+	for cell, want := range map[string]string{
+		"0,5":     `value "0,5" is not a number (it has a decimal comma; if the file writes numbers that way, set data.decimal: comma, or --decimal comma)`,
+		"1,234":   `value "1,234" is not a number (it has a comma: if it is a decimal comma, set data.decimal: comma, or --decimal comma; if it separates thousands, write the number without it, such as 1234)`,
+		"-12,500": `value "-12,500" is not a number (it has a comma: if it is a decimal comma, set data.decimal: comma, or --decimal comma; if it separates thousands, write the number without it, such as -12500)`,
+		"0,125":   `value "0,125" is not a number (it has a decimal comma; if the file writes numbers that way, set data.decimal: comma, or --decimal comma)`,
+		"1234,5":  `value "1234,5" is not a number (it has a decimal comma; if the file writes numbers that way, set data.decimal: comma, or --decimal comma)`,
+	} {
+		if _, msg := (Dialect{}).number(cell); msg != want {
+			t.Errorf("%s: %s\nwant %s", cell, msg, want)
+		}
 	}
 }
