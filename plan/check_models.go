@@ -66,7 +66,7 @@ func (d *decoder) checkPartial(p *Plan) {
 	if d.predictorsKnown(p) {
 		for _, f := range pa.Free {
 			if !p.hasTerm(f) {
-				d.errAt(d.itemKey("models.partial.free", f), "%s is not a predictor (%s)", quote(f), known(p.Predictors))
+				d.errAt(d.itemKey("models.partial.free", f), "%s is not a predictor (%s)%s", quote(f), known(p.Predictors), p.columnOfTerm(f))
 			}
 		}
 	}
@@ -95,7 +95,7 @@ func (d *decoder) checkGroups(p *Plan) {
 			key := d.itemKey(gp+".predictors", x)
 			switch other, dup := groupOf[x]; {
 			case !p.hasTerm(x):
-				d.errAt(key, "%s is not a predictor (%s)", quote(x), known(p.Predictors))
+				d.errAt(key, "%s is not a predictor (%s)%s", quote(x), known(p.Predictors), p.columnOfTerm(x))
 			case !slices.Contains(pa.Free, x):
 				d.errAt(key, "%s is not in models.partial.free, so it cannot be constrained", quote(x))
 			case dup:

@@ -126,7 +126,7 @@ func (d *decoder) checkInference(p *Plan) {
 		case !slices.Contains(p.SourceColumns(), a.Predictor) && d.clean("predictors"):
 			d.errAt(key, "%s is not a column the predictors read (%s)", quote(a.Predictor), strings.Join(p.SourceColumns(), ", "))
 		case c != nil && !slices.Contains(c.Levels, a.Level):
-			d.errAt(key, "%s is categorical: give one of its levels (%s)", quote(a.Predictor), strings.Join(c.Levels, ", "))
+			d.errAt(key, "%s is not a level of %s, which is categorical: give one of its levels (%s)", quote(a.Level), quote(a.Predictor), strings.Join(c.Levels, ", "))
 		case c == nil && a.Level != "":
 			d.errAt(key, "%s is numeric: give a number, got %s", quote(a.Predictor), quote(a.Level))
 		}

@@ -1,6 +1,7 @@
 package plan
 
 import (
+	"fmt"
 	"slices"
 	"strings"
 
@@ -398,6 +399,31 @@ func (d *decoder) checkSubsetLevels(p *Plan) {
 			}
 		}
 	}
+}
+
+// columnOfTerm says, for a name that is a design column of a term with
+// several columns (a level of a categorical predictor, a column of a
+// polynomial, spline or interaction), that the term is listed instead:
+// its columns move together. "" otherwise.
+func (p *Plan) columnOfTerm(name string) string {
+	specs := []design.Spec{p.DesignSpec(Outcome{})}
+	for _, o := range p.Outcomes {
+		if o.Terms != nil {
+			specs = append(specs, p.DesignSpec(o))
+		}
+	}
+	for _, spec := range specs {
+		names, err := design.Names(spec)
+		if err != nil {
+			continue
+		}
+		for i, cols := range names {
+			if len(cols) > 1 && slices.Contains(cols, name) {
+				return fmt.Sprintf("; %s is a column of the term %s, whose %d columns (%s) move together: name the term", quote(name), quote(spec.Terms[i].Name), len(cols), strings.Join(cols, ", "))
+			}
+		}
+	}
+	return ""
 }
 
 // Subset conditions: the key names the comparison.

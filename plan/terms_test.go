@@ -117,3 +117,21 @@ func TestSubsetLeavesOutLevels(t *testing.T) {
 		t.Errorf("a level left out whose column is dropped: %v", err)
 	}
 }
+
+// A design column where a term is wanted (a level of a categorical
+// predictor in the partial set) is refused with the term to name; a
+// profile level that is not a level names the value given.
+func TestColumnWhereTermWanted(t *testing.T) {
+	src := strings.Replace(termsPlanSrc, "free: [treat, site]", "free: [treat, site.north]", 1)
+	_, err := Parse([]byte(src), "p.yaml")
+	want := `models.partial.free[1]: "site.north" is not a predictor (predictors: treat, site, grade, age_s, dose.log.c, bmi.polynomial, treat&age_s); "site.north" is a column of the term "site", whose 2 columns (site.north, site.south) move together: name the term`
+	if err == nil || !strings.Contains(err.Error(), want) {
+		t.Errorf("got %v, want %s", err, want)
+	}
+	src = strings.Replace(termsPlanSrc, "profile: {site: south", "profile: {site: South", 1)
+	_, err = Parse([]byte(src), "p.yaml")
+	want = `inference.profile.site: "South" is not a level of "site", which is categorical: give one of its levels (north, east, south)`
+	if err == nil || !strings.Contains(err.Error(), want) {
+		t.Errorf("got %v, want %s", err, want)
+	}
+}

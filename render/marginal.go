@@ -3,10 +3,12 @@ package render
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"ordplan/render/numfmt"
 	"ordplan/runner"
+	"ordplan/runner/design"
 )
 
 // writeMarginalEffects writes the chosen model's marginal effects of each
@@ -28,10 +30,14 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			}
 		case "means":
 			d.h(3, "Marginal effects at the means")
-			d.p("The same effects at one point: every predictor at its mean (%s), a 0/1 predictor changed from 0 to 1 with the others at their means. Standard errors by the delta method; intervals at %s.%s", pointList(or, set.Point), pct(level), atCategorical(categorical))
+			at := "every predictor at its mean"
+			if or.Design != nil && slices.ContainsFunc(or.Design.Terms, func(t design.Term) bool { return t.Kind == design.KindCategorical }) {
+				at = "every numeric predictor at its mean and every categorical one at its reference level, not at its shares in the data"
+			}
+			d.p("The same effects at one point: %s (%s), a 0/1 predictor changed from 0 to 1 with the others at that point. Standard errors by the delta method; intervals at %s.%s", at, pointList(or, set.Point), pct(level), categorical)
 		case "profile":
 			d.h(3, "Marginal effects at the plan's profile")
-			d.p("The effects at the point %s (predictors the plan's profile does not set are at their means, categorical ones at their reference level; a 0/1 predictor is changed from 0 to 1, any other numeric predictor differentiated, at that point). Standard errors by the delta method; intervals at %s.%s", pointList(or, set.Point), pct(level), atCategorical(categorical))
+			d.p("The effects at the point %s (predictors the plan's profile does not set are at their means, categorical ones at their reference level; a 0/1 predictor is changed from 0 to 1, any other numeric predictor differentiated, at that point). Standard errors by the delta method; intervals at %s.%s", pointList(or, set.Point), pct(level), categorical)
 		}
 		if set.Error != "" {
 			d.p("Not computed: %s.", set.Error)
@@ -103,15 +109,6 @@ func weightedNote(or *runner.OutcomeResult) string {
 		return " (weighted by the frequency weights)"
 	}
 	return ""
-}
-
-// atCategorical adds, when the outcome has categorical or transformed
-// terms, where categorical predictors are held at one point.
-func atCategorical(note string) string {
-	if note == "" {
-		return ""
-	}
-	return " Categorical predictors are at their reference level unless the plan sets one (inference.profile);" + strings.TrimPrefix(note, " Effects are per column of the data, not per column of the model:")
 }
 
 // pooledPoint says where the point of pooled effects at one point comes
