@@ -102,6 +102,7 @@ func (d *decoder) decodeTerms(n *yaml.Node, path string) ([]string, []design.Ter
 			continue
 		}
 		seen[t.Name] = deref(it).Line
+		t.Line, t.Col = deref(it).Line, deref(it).Column
 		names = append(names, t.Name)
 		terms = append(terms, t)
 	}

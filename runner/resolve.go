@@ -256,7 +256,7 @@ func (a *Analysis) Load(r Reading) (*Loaded, error) {
 		if !a.Plan {
 			return nil, fmt.Errorf("%s: %v", a.DataFile, err)
 		}
-		return nil, fmt.Errorf("%s: %v (data %s, outcome %q)", a.Source, err, a.DataFile, r.Outcome)
+		return nil, fmt.Errorf("%s%s: %v (data %s, outcome %q)", a.Source, r.termPlace(err), err, a.DataFile, r.Outcome)
 	}
 	return &Loaded{Data: ds, Design: dz, FitData: d}, nil
 }
@@ -278,6 +278,21 @@ func (a *Analysis) CheckDesign(r Reading, d *fit.Data) error {
 		return fmt.Errorf("%s: outcome %q: %v", a.DataFile, r.Outcome, err)
 	}
 	return nil
+}
+
+// termPlace is ":LINE:COL" of the plan's term a design error is about, or
+// "" when the error names none (or the term was not read from a file).
+func (r Reading) termPlace(err error) string {
+	var de *design.Error
+	if !errors.As(err, &de) || de.Key == "" {
+		return ""
+	}
+	for _, t := range r.Design.Terms {
+		if t.Key == de.Key && t.Line > 0 {
+			return fmt.Sprintf(":%d:%d", t.Line, t.Col)
+		}
+	}
+	return ""
 }
 
 // keyOf names the plan key behind a data error on a categorical column or

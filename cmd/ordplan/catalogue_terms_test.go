@@ -87,7 +87,7 @@ func termItems(dir string) []badInput {
 			want: []string{`cat.csv:2: column "site": value "north" is not a number; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)`}},
 		{id: "T3", name: "log of a negative value", args: []string{"run"}, setup: writeTermsData,
 			plan: termsEdit("[site, x]", "[site, {column: x, log: true}]"), code: 1,
-			want: []string{`T3.yaml: predictors[1]: data line 7: column "x": log(-0.5) is undefined: the value is not positive (state a shift for zeros: log: {shift: 1})`}},
+			want: []string{`T3.yaml:6:20: predictors[1]: data line 7: column "x": log(-0.5) is undefined: the value is not positive (state a shift for zeros: log: {shift: 1})`}},
 		{id: "T4", name: "interaction with a term not in the plan", args: []string{"check"}, setup: writeTermsData,
 			plan: termsEdit("[site, x]", "[site, x, {interact: [site, age]}]"), code: 1,
 			want: []string{`predictors[2].interact[1]: "age" is not a term listed before this interaction in predictors`}},
@@ -96,7 +96,7 @@ func termItems(dir string) []badInput {
 			want: []string{`cat.csv: column "x": the subset keeps no rows: all 60 data rows fail its conditions (outside the subset x > 1000: 60)`, `plan key subset[0]`}},
 		{id: "T6", name: "declared level never observed", args: []string{"run"}, setup: writeTermsData,
 			plan: termsEdit("[north, east, south]", "[north, east, south, west]"), code: 1,
-			want: []string{`T6.yaml: predictors[0]: column "site": level "west" is declared but occurs in no row used; remove it from the levels, or have its column dropped (in a plan unobserved: drop, in ordplan fit |drop)`}},
+			want: []string{`T6.yaml:6:14: predictors[0]: column "site": level "west" is declared but occurs in no row used; remove it from the levels, or have its column dropped (in a plan unobserved: drop, in ordplan fit |drop)`}},
 		{id: "T7", name: "declared level never observed, dropped as the plan says", args: []string{"run"}, setup: writeTermsData,
 			plan: termsEdit("[north, east, south]}", "[north, east, south, west], unobserved: drop}"), code: 0,
 			check: func(t *testing.T, dir, out, errs string) {

@@ -60,6 +60,7 @@ type TermSpec struct {
 	Transform          // numeric terms only
 	Interact  []string `json:"interact,omitempty"` // names of earlier terms, for an interaction
 	Key       string   `json:"plan_key,omitempty"` // plan key path, for messages
+	Line, Col int      `json:"-"`                  // where the plan writes the term (0: not from a plan file)
 }
 
 // Spec is the plan's description of a design: the raw columns it reads
