@@ -110,11 +110,11 @@ func TestResolvePlanAndFlagsAgree(t *testing.T) {
 			if !reflect.DeepEqual(rp.Options, rf.Options) {
 				t.Errorf("data options:\nplan  %+v\nflags %+v", rp.Options, rf.Options)
 			}
-			// Term keys name where a term was written (plan key or flag
-			// item), for messages only.
+			// Term keys and places name where a term was written (plan key
+			// and line, or flag item), for messages only.
 			for _, r := range []*runner.Reading{&rp, &rf} {
 				for i := range r.Design.Terms {
-					r.Design.Terms[i].Key = ""
+					r.Design.Terms[i].Key, r.Design.Terms[i].Line, r.Design.Terms[i].Col = "", 0, 0
 				}
 			}
 			if !reflect.DeepEqual(rp.Design, rf.Design) {
