@@ -148,11 +148,43 @@ func rowsSentence(r *runner.Result) string {
 	return "Information criteria and tests compare models on the same rows; no used column had a missing value in the rows analysed."
 }
 
+// independenceSentence states what each model assumes, and what the
+// standard errors the run used do and do not allow for: with
+// cluster-robust errors, correlation within clusters, which the
+// likelihood-ratio and other likelihood-based tests and the criteria still
+// ignore; with a sandwich, a wrong variance.
+func independenceSentence(r *runner.Result) string {
+	shape := "that the link function is right, and that the predictors enter as the plan's terms state them (linearly, or through the stated coding of categorical predictors, transformations, polynomials, splines and interactions); a relation of another shape is not found by the model."
+	var pol runner.CovariancePolicy
+	if r.Analysis != nil {
+		pol = r.Analysis.Errors
+	}
+	switch {
+	case pol.Covariance == fit.Clustered:
+		g := 0
+		for _, or := range r.Outcomes {
+			seen := map[string]bool{}
+			for _, c := range or.Data.Cluster {
+				seen[c] = true
+			}
+			g = max(g, len(seen))
+		}
+		s := fmt.Sprintf("Each model's likelihood treats the observations as independent given the predictors; it assumes %s The standard errors, intervals, Wald tests and the plan's hypotheses allow for correlation within the %d clusters of `%s` (cluster-robust sandwich), but the likelihood-ratio, score, Brant and Wolfe-Gould tests and AIC and BIC do not: they take every observation as independent, and reject too often when observations of a cluster are alike.", shape, g, r.Plan.Data.Cluster)
+		if g < 40 {
+			s += fmt.Sprintf(" With %d clusters (fewer than about 40) the cluster-robust errors themselves tend to be too small.", g)
+		}
+		return s
+	case pol.Covariance.IsSandwich() && !pol.Sampling:
+		return "Each model assumes that observations are independent given the predictors, " + shape + " The sandwich standard errors, intervals and Wald tests stay valid when the variance the model implies is wrong; the likelihood-ratio, score, Brant and Wolfe-Gould tests and AIC and BIC do not."
+	}
+	return "Each model assumes that observations are independent given the predictors, " + shape
+}
+
 func writeLimits(d *doc, r *runner.Result) {
 	d.h(2, "Assumptions and limits")
 	items := []string{
 		"The models describe how the outcome is associated with the predictors in these data. They do not show that a predictor causes a change in the outcome; neither do the predicted probabilities or the marginal effects, which are summaries of the same fitted association.",
-		"Each model assumes that observations are independent given the predictors, that the link function is right, and that the predictors enter as the plan's terms state them (linearly, or through the stated coding of categorical predictors, transformations, polynomials, splines and interactions); a relation of another shape is not found by the model.",
+		independenceSentence(r),
 		"Tests of the parallel-lines assumption reject easily in large samples: a small p-value can reflect a difference between boundaries too small to matter in practice. Look at the effects across boundaries before giving up a simpler model.",
 		"Cumulative partial and nonparallel models can predict negative category probabilities for some covariate values (their cumulative probabilities cross). The number of rows of the data where this happens is shown for every model, and predictions on the grid of the focus predictor are checked too; predictions outside the observed covariate range are more exposed.",
 		startsSentence(r),

@@ -1,6 +1,7 @@
 package render
 
 import (
+	"fmt"
 	"strings"
 	"testing"
 
@@ -75,6 +76,43 @@ func TestRowsSentence(t *testing.T) {
 		s := rowsSentence(c.r)
 		if !strings.Contains(s, c.want) || strings.Contains(s, c.lack) {
 			t.Errorf("%q: want %q, not %q", s, c.want, c.lack)
+		}
+	}
+}
+
+// The sentence on independence says what the run's standard errors allow
+// for: cluster-robust errors name the clusters (and caution when they are
+// few) and say that likelihood-ratio tests and criteria ignore them.
+func TestIndependenceSentence(t *testing.T) {
+	result := func(cov fit.Covariance, clusters int) *runner.Result {
+		ds := &data.Dataset{}
+		for i := 0; i < 3*clusters; i++ {
+			ds.Cluster = append(ds.Cluster, fmt.Sprint("c", i%clusters))
+		}
+		p := &plan.Plan{}
+		p.Data.Cluster = "district"
+		return &runner.Result{Plan: p, Analysis: &runner.Analysis{Errors: runner.CovariancePolicy{Covariance: cov}},
+			Outcomes: []*runner.OutcomeResult{{Data: ds}}}
+	}
+	for _, c := range []struct {
+		r          *runner.Result
+		want, lack []string
+	}{
+		{result(fit.Clustered, 24), []string{"within the 24 clusters of `district`", "likelihood-ratio, score, Brant and Wolfe-Gould tests and AIC and BIC do not", "With 24 clusters (fewer than about 40)"}, nil},
+		{result(fit.Clustered, 50), []string{"within the 50 clusters of `district`"}, []string{"fewer than about 40"}},
+		{result(fit.Sandwich, 0), []string{"sandwich standard errors, intervals and Wald tests stay valid"}, []string{"clusters"}},
+		{result(fit.Observed, 0), []string{"Each model assumes that observations are independent given the predictors"}, []string{"clusters", "sandwich"}},
+	} {
+		s := independenceSentence(c.r)
+		for _, w := range c.want {
+			if !strings.Contains(s, w) {
+				t.Errorf("%q lacks %q", s, w)
+			}
+		}
+		for _, w := range c.lack {
+			if strings.Contains(s, w) {
+				t.Errorf("%q holds %q", s, w)
+			}
 		}
 	}
 }
