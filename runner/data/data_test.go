@@ -44,6 +44,8 @@ func TestReadErrors(t *testing.T) {
 			`t.csv:4: row has 4 fields but the header has 3`},
 		{"bad quote", "y,a,b\n1,2,3\n1,x\"y,3\n", opts, 3, "",
 			`t.csv:3: malformed CSV at character 4: bare " in non-quoted-field`},
+		{"quote not closed", "y,a,b\n1,2,3\n1,\"2,3\n2,3,4\n1,2,3\n", opts, 3, "",
+			`t.csv:3: malformed CSV: a quoted field of the row that starts on this line is not closed where it should be (an extraneous or missing " in a quoted field), and the row runs on to line 5: check the quotes of this row`},
 		{"non-numeric predictor", "y,a,b\n1,2,3\n2,abc,4\n", opts, 3, "a",
 			`t.csv:3: column "a": value "abc" is not a number; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)`},
 		{"underscore number", "y,a,b\n1,2,3\n2,1_000,4\n", opts, 3, "a",

@@ -122,6 +122,14 @@ func (r *reader) csvErr(err error, rec []string) *Error {
 			e.Err = err
 			return e
 		}
+		if errors.Is(pe.Err, csv.ErrQuote) && pe.StartLine > 0 && pe.StartLine < pe.Line {
+			// A quote opened and never closed: the error shows where the
+			// reader gave up (often the end of the file); the record
+			// starts where the quote was opened.
+			e := r.fail(pe.StartLine, "", "malformed CSV: a quoted field of the row that starts on this line is not closed where it should be (an extraneous or missing \" in a quoted field), and the row runs on to line %d: check the quotes of this row", pe.Line)
+			e.Err = err
+			return e
+		}
 		e := r.fail(pe.Line, "", "malformed CSV at character %d: %v", pe.Column, pe.Err)
 		e.Err = err
 		return e
