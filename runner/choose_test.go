@@ -50,12 +50,17 @@ func TestChooseAndTieBreak(t *testing.T) {
 		{
 			name: "same parameters within the margin: smaller criterion", by: "aic", margin: 2,
 			fits:   []*FitEntry{candidate("a", ok, 101, 0, 4), candidate("b", ok, 100.5, 0, 4)},
-			chosen: "b", reason: "2 models within the margin 2",
+			chosen: "b", reason: "2 models within the margin 2, this one has the fewest parameters (as 1 other(s) have) and of those the smallest AIC",
 		},
 		{
 			name: "equal to rounding: grid order", by: "bic",
 			fits:   []*FitEntry{candidate("first", ok, 0, 200+1e-9, 6), candidate("second", ok, 0, 200, 6)},
 			chosen: "first", reason: "chosen: BIC 200.000",
+		},
+		{
+			name: "equal within the margin: grid order, said so", by: "bic", margin: 2,
+			fits:   []*FitEntry{candidate("first", ok, 0, 200+1e-9, 6), candidate("second", ok, 0, 200, 6)},
+			chosen: "first", reason: "this one has the fewest parameters (as 1 other(s) have) and the same BIC, and comes first in the plan's grid",
 		},
 		{
 			name: "a fit without a criterion is set aside", by: "aic",

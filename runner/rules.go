@@ -809,6 +809,22 @@ func (env *ruleEnv) choose(r plan.Rule, alive []*FitEntry, ro *RuleOutcome) {
 			v.Reason = fmt.Sprintf("chosen: %s %s (smallest %s), %d parameters", by, numfmt.Fixed(c, 3), numfmt.Fixed(best, 3), f.Result.NParams)
 			if len(tied) > 1 {
 				v.Reason += fmt.Sprintf("; %d models within the margin %g, this one has the fewest parameters", len(tied), r.Margin)
+				// Others with as few parameters: say how the tie was broken.
+				same, level := 0, 0
+				for _, o := range tied[1:] {
+					if o.Result.NParams == f.Result.NParams {
+						same++
+						if crit(o) <= c+tol {
+							level++
+						}
+					}
+				}
+				switch {
+				case level > 0:
+					v.Reason += fmt.Sprintf(" (as %d other(s) have) and the same %s, and comes first in the plan's grid", same, by)
+				case same > 0:
+					v.Reason += fmt.Sprintf(" (as %d other(s) have) and of those the smallest %s", same, by)
+				}
 			}
 		case c <= best+r.Margin+tol:
 			v.Reason = fmt.Sprintf("within the margin (%s %s, %+.3f) but ", by, numfmt.Fixed(c, 3), c-best)
