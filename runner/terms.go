@@ -122,6 +122,7 @@ func describeTerms(dz *design.Design) [][3]string {
 			if len(r.Dropped) > 0 {
 				what += fmt.Sprintf(" (never observed, dropped: %s)", strings.Join(r.Dropped, ", "))
 			}
+			what += levelColumns(r)
 		case design.KindInteraction:
 			what = "interaction of " + strings.Join(dz.Terms[dz.Term(r.Term)].PartNames(dz), " and ")
 		default:
@@ -132,6 +133,33 @@ func describeTerms(dz *design.Design) [][3]string {
 		out = append(out, [3]string{r.Term, what, strings.Join(r.Columns, ", ")})
 	}
 	return out
+}
+
+// levelColumns pairs each column of a categorical term with its level
+// when some column name does not spell its level as written (characters
+// a name cannot hold, a position appended to keep names distinct), so
+// the reader need not guess which column is which level.
+func levelColumns(r design.TermRecord) string {
+	var levels []string
+	for j, l := range r.Levels {
+		if (r.Coding == design.Successive && j == 0) || (r.Coding != design.Successive && l == r.Reference) {
+			continue
+		}
+		levels = append(levels, l)
+	}
+	if len(levels) != len(r.Columns) {
+		return ""
+	}
+	var pairs []string
+	plain := true
+	for k, c := range r.Columns {
+		plain = plain && c == r.Term+"."+levels[k]
+		pairs = append(pairs, fmt.Sprintf("%s is %q", c, levels[k]))
+	}
+	if plain {
+		return ""
+	}
+	return "; " + strings.Join(pairs, ", ")
 }
 
 func describeNumeric(r design.TermRecord) string {

@@ -591,3 +591,25 @@ func TestExecutorWithTerms(t *testing.T) {
 		t.Fatal("decisions differ when the fits run through the executor")
 	}
 }
+
+// The report's description of a categorical term pairs each column with
+// its level when a column name does not spell the level as written, and
+// says nothing more when every name does.
+func TestDescribeTermsPairsColumnsWithLevels(t *testing.T) {
+	for _, c := range []struct {
+		levels []string
+		want   string
+	}{
+		{[]string{"main road", "cul-de-sac", "cul de sac"}, `categorical g, treatment coding, reference "main road", levels main road, cul-de-sac, cul de sac; g.cul_de_sac is "cul-de-sac", g.cul_de_sac_3 is "cul de sac"`},
+		{[]string{"a", "b", "c"}, `categorical g, treatment coding, reference "a", levels a, b, c`},
+	} {
+		spec := design.Spec{Sources: []design.Source{{Name: "g", Cat: &design.Categorical{Levels: c.levels, Coding: design.Treatment}}}, Terms: []design.TermSpec{{Name: "g", Source: "g"}}}
+		dz, err := design.Build(spec, []float64{0, 1, 2, 1}, 4, nil, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := describeTerms(dz)[0][1]; got != c.want {
+			t.Errorf("got  %s\nwant %s", got, c.want)
+		}
+	}
+}
