@@ -26,7 +26,7 @@ func TestBlockKernelsAsGeneral(t *testing.T) {
 		{"stacked", stackedBinary, false},
 		{"adjacent", Adjacent, false},
 	} {
-		for J := 2; J <= 6; J++ {
+		for _, J := range []int{2, 3, 4, 5, 6, 20} {
 			const n, K = 1500, 3
 			d := speedData(n, K, J)
 			rng := rand.New(rand.NewPCG(7, uint64(J)))
