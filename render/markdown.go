@@ -221,7 +221,7 @@ func startsSentence(r *runner.Result) string {
 	}
 	s += " A start that shows it cannot reach the best log-likelihood found so far is abandoned early, so a count of starts reaching the best counts only the starts run to it"
 	if screened {
-		s += fmt.Sprintf("; with more than %d rows, as here, the starts are first screened on a quadratic approximation of the log-likelihood around the corresponding unconstrained fit, and, with the logit link, some are abandoned on the approximation alone when, after an allowance for its error, it puts them out of reach of the best.", above)
+		s += fmt.Sprintf("; with more than %d rows, as here, the starts are first screened on a quadratic approximation of the log-likelihood around the corresponding unconstrained fit, and, with the logit link in stage and adjacent models, some are abandoned on the approximation alone when, after an allowance for its error, it puts them out of reach of the best.", above)
 	} else {
 		s += fmt.Sprintf(" (with more than %d rows, not the case here, the starts would first be screened on a quadratic approximation of the log-likelihood around the corresponding unconstrained fit).", above)
 	}

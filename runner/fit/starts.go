@@ -53,7 +53,7 @@ func newAuxiliary(d *Data, m Model, ly *layout, opt Options, sh *shared) (*auxil
 		a.partial = partial
 		if info, err := invertSym(partial.Cov, len(partial.Estimates)); err == nil {
 			a.sur = &surrogate{rankMap: newRankMap(ly, pLy, m.Effects, nil), hat: partial.Estimates, info: info,
-				peak: partial.LogLik, logit: m.Link == Logit, shape: largestShape(m3, a.sd)}
+				peak: partial.LogLik, ratio: thirdOverSecond(m, d.J), shape: largestShape(m3, a.sd)}
 		}
 	}
 	a.screen = a.sur != nil && d.N() > opt.screenAbove()

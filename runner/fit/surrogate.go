@@ -15,9 +15,10 @@ type surrogate struct {
 	// peak is the partial fit's log-likelihood (the approximation's value
 	// at hat).
 	peak float64
-	// logit: the model's link is the logit, whose log-likelihood has the
-	// bound on third derivatives that outOfReach's allowance rests on.
-	logit bool
+	// ratio is R, the bound of the rows' third derivatives by their second
+	// that outOfReach's allowance rests on (thirdOverSecond); 0 when the
+	// model has none, and then no start is abandoned on the approximation.
+	ratio float64
 	// shape is the largest standardized third absolute moment of the
 	// predictors, at least the normal's (largestShape).
 	shape float64
@@ -167,9 +168,41 @@ func (s *surrogate) match(sur []float64, runs []*runRecord) *runRecord {
 }
 
 // reachAllowance is the constant C of the allowance for the
-// approximation's error, C shape Q sqrt(Q / W) (outOfReach): sqrt(2) R / 3
-// with R = 2.
-var reachAllowance = 2 * math.Sqrt2 / 3
+// approximation's error, C shape Q sqrt(Q / W) (outOfReach), over R:
+// C = sqrt(2) R / 3.
+var reachAllowance = math.Sqrt2 / 3
+
+// thirdOverSecond is R, a bound |l_i^(3)| <= R v_i of a row's third
+// derivative along any change of its linear predictors by its second
+// (v_i, minus the second derivative), for model m with J categories; 0
+// when there is none.
+//   - Logit, stage comparison (and a binary outcome under any comparison):
+//     a row is a sum of binary logit terms, each with its own linear
+//     predictor, and |p(1-p)(1-2p)| <= p(1-p): R = 1.
+//   - Logit, adjacent comparison: a row's log-likelihood is a
+//     multinomial logit in the category scores (0 to q = J - 1 times the
+//     change), whose third derivative is the scores' third cumulant, at
+//     most q times their variance (a variable within a range of q):
+//     R = q. The ratio reaches about q when the fitted probability sits
+//     at the two end categories.
+//   - Logit, cumulative comparison with three or more categories: a
+//     middle category's log(F(a) - F(b)) behaves as log(a - b) when its
+//     two boundaries nearly meet, and the ratio grows as 4 / (a - b)
+//     without bound: none.
+//   - Other links: the probit's ratio grows like |eta|, the cloglog's and
+//     loglog's exponentially; the Cauchy's log-likelihood is not concave:
+//     none.
+func thirdOverSecond(m Model, J int) float64 {
+	switch {
+	case m.Link != Logit:
+		return 0
+	case J == 2 || m.Comparison == Stage:
+		return 1
+	case m.Comparison == Adjacent:
+		return float64(J - 1)
+	}
+	return 0
+}
 
 // normalShape is E|z|^3 of a standard normal z, 2 sqrt(2 / pi).
 var normalShape = 2 * math.Sqrt(2/math.Pi)
@@ -210,12 +243,10 @@ func (s *surrogate) curvature() float64 {
 // (v_i = -l_i^(2), minus the second derivative; d_i the change of row i's
 // linear predictor). The error is led by the cubic term
 // E = 1/6 sum_i w_i l_i^(3) d_i^3. The logit's derivatives obey
-// |l_i^(3)| <= R v_i: for a binary comparison
-// |p(1-p)(1-2p)| <= p(1-p), R = 1; a row of the cumulative and adjacent
-// comparisons depends on the linear predictors of two or more equations,
-// whose changes can add, and R = 2 is taken for every logit model (for
-// such rows an assumption, not a proof: the tests below check it on the
-// data least favourable to it). So |E| <= R/6 sum_i w_i v_i |d_i|^3. The
+// |l_i^(3)| <= R v_i with R = 1 for stage models and binary outcomes and
+// R = q for adjacent ones; cumulative models with three or more
+// categories have no such bound (thirdOverSecond), and abandon no start
+// on the approximation alone. So |E| <= R/6 sum_i w_i v_i |d_i|^3. The
 // change is carried by the predictors, d_i ~ a z_i with z a standardized
 // predictor; with the curvature v_i taken as unrelated to z (rows with
 // extreme z have extreme fitted probabilities and less curvature, so this
@@ -240,10 +271,8 @@ func (s *surrogate) curvature() float64 {
 // ll_partial - Q + C shape Q sqrt(Q / W), which falls as Q grows while the
 // allowance is below 2Q/3. A start is out of reach when ll_partial - Q(sur)
 // plus the allowance is below the best, and only while the allowance is at
-// most Q/2 (beyond, the cubic term no longer leads). No link other than the
-// logit bounds l^(3) by l^(2) (the probit's ratio grows like |eta|, the
-// cloglog's and loglog's exponentially, the Cauchy's log-likelihood is not
-// concave): those models abandon no start on the approximation alone
+// most Q/2 (beyond, the cubic term no longer leads). Models without a
+// bound R abandon no start on the approximation alone
 // (TestOutOfReachOnlyLogit: probit starts that an allowance read off logit
 // fits put far below the best reach it). TestOutOfReachStartsEndBelow
 // (references, ridge data) and TestOutOfReachAdversarial (rare 0/1 and
@@ -251,11 +280,11 @@ func (s *surrogate) curvature() float64 {
 // above the screening threshold) run every such start to its end.
 func (s *surrogate) outOfReach(sur []float64, best float64) (float64, bool) {
 	W := s.curvature()
-	if math.IsInf(best, -1) || !s.logit || !(W > 0) || math.IsInf(W, 1) {
+	if math.IsInf(best, -1) || !(s.ratio > 0) || !(W > 0) || math.IsInf(W, 1) {
 		return 0, false
 	}
 	Q, _ := s.value(sur)
-	allow := reachAllowance * s.shape * Q * math.Sqrt(Q/W)
+	allow := reachAllowance * s.ratio * s.shape * Q * math.Sqrt(Q/W)
 	if !(allow <= Q/2) {
 		return 0, false
 	}
