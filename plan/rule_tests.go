@@ -66,7 +66,7 @@ func (r Rule) TestTargets(m Models, approach fit.Comparison, e fit.Structure) []
 // restricted against one with effects full (same approach and link), and
 // if not, why.
 func TestDefined(test fit.TestKind, approach fit.Comparison, link fit.Link, restricted, full fit.Structure, sampling bool) (bool, string) {
-	if sampling && test != fit.TestWald {
+	if sampling && test.NeedsLikelihood() {
 		return false, fmt.Sprintf("with sampling weights the fits maximize a pseudo-likelihood, and the %s test needs a likelihood (use test: wald)", test.Title())
 	}
 	nonlinear := func(e fit.Structure) bool { return e == fit.ConstrainedEffects || e == fit.StereotypeEffects }

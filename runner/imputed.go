@@ -340,7 +340,9 @@ func meanRows(shape [][]float64, rs []*fit.Result, get func(*fit.Result) [][]flo
 
 // pooledTestBlock is testBlock on imputed data: likelihood-ratio tests
 // pooled by D3, Wald and Brant tests by D1, score and Wolfe-Gould tests by
-// D2 (pooledtests.go).
+// D2 (pooledtests.go); the tests that cannot be computed (sampling
+// weights, Brant outside the cumulative logit model) are barred as on one
+// data set (barredTest).
 func pooledTestBlock(an *Analysis, or *OutcomeResult, perSet [][]*FitEntry, approach fit.Comparison, link fit.Link) *TestBlock {
 	fopt := an.Fit
 	tb := &TestBlock{Approach: approach, Link: link}
@@ -360,7 +362,12 @@ func pooledTestBlock(an *Analysis, or *OutcomeResult, perSet [][]*FitEntry, appr
 		return pooledScore(or, par, m)
 	}
 	cumLogit := approach == fit.Cumulative && link == fit.Logit
+	sw := an.Errors.Sampling
 	for _, kind := range an.Tests.ParallelLines {
+		if t, barred := barredTest(sw, kind, cumLogit); barred {
+			tb.Global = append(tb.Global, t)
+			continue
+		}
 		switch kind {
 		case fit.TestLR:
 			tb.Global = append(tb.Global, lr(par, np))
@@ -369,27 +376,20 @@ func pooledTestBlock(an *Analysis, or *OutcomeResult, perSet [][]*FitEntry, appr
 		case fit.TestScore:
 			tb.Global = append(tb.Global, score(allColumns(or.Terms)))
 		case fit.TestBrant:
-			if cumLogit {
-				tb.Global = append(tb.Global, or.pooledBrant(fopt).test(allColumns(or.Terms)))
-			} else {
-				tb.Global = append(tb.Global, missingTest(kind, cumLogitOnly))
-			}
+			tb.Global = append(tb.Global, or.pooledBrant(fopt).test(allColumns(or.Terms)))
 		case fit.TestWolfeGould:
-			if cumLogit {
-				tb.Global = append(tb.Global, pooledWolfeGould(or, fopt))
-			} else {
-				tb.Global = append(tb.Global, missingTest(kind, cumLogitOnly))
-			}
+			tb.Global = append(tb.Global, pooledWolfeGould(or, fopt))
 		}
 	}
 	for _, term := range or.Terms {
 		vt := VarTests{Predictor: term.Name}
 		for _, kind := range an.Tests.ParallelLines {
+			if _, barred := barredTest(sw, kind, cumLogit); barred {
+				continue
+			}
 			switch kind {
 			case fit.TestBrant:
-				if cumLogit {
-					vt.Tests = append(vt.Tests, or.pooledBrant(fopt).test(term.Columns))
-				}
+				vt.Tests = append(vt.Tests, or.pooledBrant(fopt).test(term.Columns))
 			case fit.TestScore:
 				vt.Tests = append(vt.Tests, score(term.Columns))
 			case fit.TestWald:
@@ -402,7 +402,7 @@ func pooledTestBlock(an *Analysis, or *OutcomeResult, perSet [][]*FitEntry, appr
 			tb.PerVariable = append(tb.PerVariable, vt)
 		}
 	}
-	tb.Nested = or.nestedTests(approach, link, lr)
+	tb.Nested = or.nestedTests(approach, link, nestedLR(sw, lr))
 	return tb
 }
 

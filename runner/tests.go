@@ -33,12 +33,8 @@ func testBlock(an *Analysis, or *OutcomeResult, approach fit.Comparison, link fi
 	sw, fopt := an.Errors.Sampling, an.Fit
 	var brant *fit.BrantResult
 	for _, kind := range an.Tests.ParallelLines {
-		if sw && kind != fit.TestWald {
-			if kind == fit.TestLR || kind == fit.TestScore || cumLogit {
-				tb.Global = append(tb.Global, missingTest(kind, pseudoReason))
-			} else {
-				tb.Global = append(tb.Global, missingTest(kind, cumLogitOnly))
-			}
+		if t, barred := barredTest(sw, kind, cumLogit); barred {
+			tb.Global = append(tb.Global, t)
 			continue
 		}
 		switch kind {
@@ -53,10 +49,6 @@ func testBlock(an *Analysis, or *OutcomeResult, approach fit.Comparison, link fi
 				tb.Global = append(tb.Global, missingTest(fit.TestWald, "the nonparallel model has no usable fit"))
 			}
 		case fit.TestBrant:
-			if !cumLogit {
-				tb.Global = append(tb.Global, missingTest(kind, cumLogitOnly))
-				break
-			}
 			brant = fit.Brant(d, fopt)
 			t := brant.Omnibus
 			if !brant.OK {
@@ -64,10 +56,6 @@ func testBlock(an *Analysis, or *OutcomeResult, approach fit.Comparison, link fi
 			}
 			tb.Global = append(tb.Global, t)
 		case fit.TestWolfeGould:
-			if !cumLogit {
-				tb.Global = append(tb.Global, missingTest(kind, cumLogitOnly))
-				break
-			}
 			tb.Global = append(tb.Global, fit.WolfeGould(d, fopt))
 		}
 	}
@@ -75,7 +63,7 @@ func testBlock(an *Analysis, or *OutcomeResult, approach fit.Comparison, link fi
 		pred := term.Name
 		vt := VarTests{Predictor: pred}
 		for _, kind := range an.Tests.ParallelLines {
-			if sw && kind != fit.TestWald {
+			if _, barred := barredTest(sw, kind, cumLogit); barred {
 				continue
 			}
 			switch kind {
@@ -103,12 +91,7 @@ func testBlock(an *Analysis, or *OutcomeResult, approach fit.Comparison, link fi
 			tb.PerVariable = append(tb.PerVariable, vt)
 		}
 	}
-	tb.Nested = or.nestedTests(approach, link, func(r, f *FitEntry) fit.Test {
-		if sw {
-			return missingTest(fit.TestLR, pseudoReason)
-		}
-		return lrOf(r, f)
-	})
+	tb.Nested = or.nestedTests(approach, link, nestedLR(sw, lrOf))
 	return tb
 }
 
@@ -134,6 +117,33 @@ func (or *OutcomeResult) nestedTests(a fit.Comparison, l fit.Link, lr func(r, f 
 		out = append(out, NestedTest{Restricted: r.ID, Full: f.ID, Test: lr(r, f)})
 	}
 	return out
+}
+
+// barredTest is the entry, shown as not computed with its reason, of a
+// test of kind that cannot be computed for an approach and link, on one
+// data set or pooled over imputed sets alike: a Brant or Wolfe-Gould test
+// outside the cumulative logit model, and under sampling weights every
+// test that needs a likelihood (fit.TestKind.NeedsLikelihood). barred is
+// false when the test can be computed.
+func barredTest(sampling bool, kind fit.TestKind, cumLogit bool) (t fit.Test, barred bool) {
+	switch {
+	case (kind == fit.TestBrant || kind == fit.TestWolfeGould) && !cumLogit:
+		return missingTest(kind, cumLogitOnly), true
+	case sampling && kind.NeedsLikelihood():
+		return missingTest(kind, pseudoReason), true
+	}
+	return fit.Test{}, false
+}
+
+// nestedLR is the nested likelihood-ratio test lr of restricted within
+// full, shown as not computed under sampling weights (barredTest).
+func nestedLR(sampling bool, lr func(r, f *FitEntry) fit.Test) func(r, f *FitEntry) fit.Test {
+	return func(r, f *FitEntry) fit.Test {
+		if t, barred := barredTest(sampling, fit.TestLR, false); barred {
+			return t
+		}
+		return lr(r, f)
+	}
 }
 
 // pseudoReason says why likelihood-based tests are not reported with

@@ -40,6 +40,15 @@ func (k *TestKind) UnmarshalText(b []byte) (err error) {
 	return err
 }
 
+// NeedsLikelihood reports whether the test rests on the log-likelihood
+// (its differences, derivatives or per-equation binary fits), so that it
+// has no chi-square reference when the fits maximize a pseudo-likelihood
+// (sampling weights): every test but Wald, whose sandwich covariance
+// stays valid. The one answer to "which tests stand under sampling
+// weights", for the plan check and for the runs on one data set and on
+// imputed sets alike.
+func (k TestKind) NeedsLikelihood() bool { return k != TestWald }
+
 // Title is the test's name in sentences ("likelihood-ratio", "Wald").
 func (k TestKind) Title() string {
 	switch k {
