@@ -6,14 +6,13 @@ import (
 	"encoding/json"
 	"fmt"
 	"os"
-	"os/signal"
+	"io"
 	"path/filepath"
 	"regexp"
 	"slices"
 	"sort"
 	"strconv"
 	"strings"
-	"syscall"
 
 	"ordplan/runner"
 )
@@ -21,8 +20,12 @@ import (
 // lockFile is the lock a run holds in its output folder.
 const lockFile = ".ordplan.lock"
 
-// outputLock is a held lock on an output folder.
-type outputLock struct{ f *os.File }
+// outputLock is a held lock on an output folder, with the watch on
+// interrupts that claimOutput starts (nil for a bare lockOutput).
+type outputLock struct {
+	f *os.File
+	w *interruptWatch
+}
 
 // lockOutput creates the output folder if needed and takes its lock, so
 // that one run at a time writes there. The lock is released by Unlock or
@@ -57,33 +60,18 @@ func lockOutput(dir string) (*outputLock, error) {
 	return &outputLock{f: f}, nil
 }
 
-// Unlock releases the lock.
+// Unlock ends the watch on interrupts (delivering one held since a failed
+// write) and releases the lock.
 func (l *outputLock) Unlock() {
+	if l != nil && l.w != nil {
+		l.w.end()
+		l.w = nil
+	}
 	if l != nil && l.f != nil {
 		unlockFile(l.f)
 		l.f.Close()
 		l.f = nil
 	}
-}
-
-// writeAll writes every file into dir all or nothing (writeFiles). An
-// interrupt (Ctrl-C, SIGTERM) that arrives meanwhile is held until the
-// files are written and then delivered again, so that it stops the
-// program with the folder complete, never between two renames or with
-// temporary files left behind.
-func writeAll(dir string, names []string, files map[string][]byte) error {
-	held := make(chan os.Signal, 1)
-	signal.Notify(held, os.Interrupt, syscall.SIGTERM)
-	err := writeFiles(dir, names, files)
-	signal.Stop(held)
-	select {
-	case s := <-held:
-		if p, perr := os.FindProcess(os.Getpid()); perr == nil {
-			p.Signal(s)
-		}
-	default:
-	}
-	return err
 }
 
 // afterTemp, when set (by tests), is called after each temporary file is
@@ -161,7 +149,12 @@ const recordFile = "run.json"
 // power) stops it too, so that one command's outputs never remove or
 // replace another's (O6). A record written before the command was kept
 // is a run's or a rehearsal's (power kept none).
-func claimOutput(dir, command string, fixed []string) (*outputLock, error) {
+//
+// From then until Unlock an interrupt (Ctrl-C, SIGTERM) stops the command
+// with one line on stderr saying what the folder holds (interruptWatch);
+// one arriving while the outputs are written is held until the folder is
+// complete (commit).
+func claimOutput(dir, command string, fixed []string, stderr io.Writer) (*outputLock, error) {
 	lock, err := lockOutput(dir)
 	if err != nil {
 		return nil, err
@@ -182,24 +175,28 @@ func claimOutput(dir, command string, fixed []string) (*outputLock, error) {
 		lock.Unlock()
 		return nil, usersFilesError(dir, mine)
 	}
+	prev, _ := previousRecord(dir)
+	lock.w = watchInterrupts(command, dir, prev != nil, stderr)
 	return lock, nil
 }
 
 // writeRun writes a run's or a rehearsal's files with its run.json (see
 // writeOutputs).
-func writeRun(r *runner.Result, command, dir string, files map[string][]byte) error {
-	return writeOutputs(dir, files, func(files map[string][]byte) ([]byte, error) {
+func writeRun(lock *outputLock, r *runner.Result, command, dir string, files map[string][]byte) error {
+	return writeOutputs(lock, dir, files, func(files map[string][]byte) ([]byte, error) {
 		return runner.RunJSON(r, command, files)
 	})
 }
 
 // writeOutputs writes a command's files into dir, then run.json, the
 // record that record makes of them (with their hashes), all or nothing (see
-// writeAll): a failure leaves the previous run's files as they were, and no
-// symlink in dir is written through. A file under an output's name that no
-// earlier run left as it is stops the write (usersFiles). The caller holds
-// the folder's lock (claimOutput).
-func writeOutputs(dir string, files map[string][]byte, record func(map[string][]byte) ([]byte, error)) error {
+// writeFiles): a failure leaves the previous run's files as they were, and
+// no symlink in dir is written through. A file under an output's name that
+// no earlier run left as it is stops the write (usersFiles). The caller
+// holds the folder's lock (claimOutput): the writing of the files and the
+// removal of the previous run's outputs this run does not write are one
+// commit of the folder, during which an interrupt is held (lock.commit).
+func writeOutputs(lock *outputLock, dir string, files map[string][]byte, record func(map[string][]byte) ([]byte, error)) error {
 	if err := os.MkdirAll(dir, 0o755); err != nil {
 		return fmt.Errorf("output directory: %w", err)
 	}
@@ -235,16 +232,18 @@ func writeOutputs(dir string, files map[string][]byte, record func(map[string][]
 		return usersFilesError(dir, mine)
 	}
 	stale := staleOutputs(dir, all)
-	if err := writeAll(dir, names, all); err != nil {
-		return err
-	}
-	// Files the previous run listed and this one does not write (the
-	// predictions of an outcome no longer predicted) would sit beside the
-	// new run.json as if they were its own: remove them.
-	for _, n := range stale {
-		os.Remove(filepath.Join(dir, n))
-	}
-	return nil
+	return lock.commit(func() error {
+		if err := writeFiles(dir, names, all); err != nil {
+			return err
+		}
+		// Files the previous run listed and this one does not write (the
+		// predictions of an outcome no longer predicted) would sit beside
+		// the new run.json as if they were its own: remove them.
+		for _, n := range stale {
+			os.Remove(filepath.Join(dir, n))
+		}
+		return nil
+	})
 }
 
 // tempName matches the temporary files writeFiles makes (os.CreateTemp

@@ -1,6 +1,9 @@
 package main
 
 import (
+	"bytes"
+	"encoding/json"
+	"io"
 	"os"
 	"os/signal"
 	"path/filepath"
@@ -12,9 +15,9 @@ import (
 
 // A write that fails for one file leaves every file of the previous run as
 // it was, and no temporary file behind.
-func TestWriteAllIsAllOrNothing(t *testing.T) {
+func TestWriteFilesIsAllOrNothing(t *testing.T) {
 	dir := t.TempDir()
-	if err := writeAll(dir, []string{"a.txt", "run.json"}, map[string][]byte{"a.txt": []byte("old a"), "run.json": []byte("old run")}); err != nil {
+	if err := writeFiles(dir, []string{"a.txt", "run.json"}, map[string][]byte{"a.txt": []byte("old a"), "run.json": []byte("old run")}); err != nil {
 		t.Fatal(err)
 	}
 	// Names that are not plain file names are refused before any write.
@@ -23,7 +26,7 @@ func TestWriteAllIsAllOrNothing(t *testing.T) {
 		for _, n := range names {
 			files[n] = []byte("new")
 		}
-		if err := writeAll(dir, names, files); err == nil {
+		if err := writeFiles(dir, names, files); err == nil {
 			t.Fatalf("%v: no error", names)
 		}
 		if b, _ := os.ReadFile(filepath.Join(dir, "a.txt")); string(b) != "old a" {
@@ -33,7 +36,7 @@ func TestWriteAllIsAllOrNothing(t *testing.T) {
 	// A failure while writing, after the first file's temporary copy is
 	// complete: a name the file system refuses (too long).
 	long := strings.Repeat("x", 300)
-	if err := writeAll(dir, []string{"a.txt", long}, map[string][]byte{"a.txt": []byte("new"), long: []byte("new")}); err == nil {
+	if err := writeFiles(dir, []string{"a.txt", long}, map[string][]byte{"a.txt": []byte("new"), long: []byte("new")}); err == nil {
 		t.Fatal("no error for a name too long")
 	}
 	if b, _ := os.ReadFile(filepath.Join(dir, "a.txt")); string(b) != "old a" {
@@ -136,11 +139,11 @@ func TestPowerOutputsRecorded(t *testing.T) {
 func TestClaimOutputChecksFixedNames(t *testing.T) {
 	dir := t.TempDir()
 	os.WriteFile(filepath.Join(dir, "report.md"), []byte("same"), 0o644)
-	if _, err := claimOutput(dir, "run", []string{"decisions.json", "report.md"}); err == nil || !strings.Contains(err.Error(), "holds report.md but no run.json") {
+	if _, err := claimOutput(dir, "run", []string{"decisions.json", "report.md"}, io.Discard); err == nil || !strings.Contains(err.Error(), "holds report.md but no run.json") {
 		t.Fatalf("claim: %v", err)
 	}
 	// The refusal released the lock.
-	l, err := claimOutput(dir, "run", []string{"decisions.json"})
+	l, err := claimOutput(dir, "run", []string{"decisions.json"}, io.Discard)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -150,43 +153,197 @@ func TestClaimOutputChecksFixedNames(t *testing.T) {
 	}
 }
 
-// An interrupt that arrives while the outputs are written is held until
-// every file is in place, then delivered again: the folder is complete and
-// no temporary file is left.
-func TestInterruptHeldDuringWrite(t *testing.T) {
-	dir := t.TempDir()
+// testRecord is a run.json as writeOutputs expects it: the SHA-256 of
+// each output.
+func testRecord(files map[string][]byte) ([]byte, error) {
+	sums := map[string]string{}
+	for n, c := range files {
+		sums[n] = sha256Hex(c)
+	}
+	return json.Marshal(map[string]any{"program": "ordplan", "made_by": "run", "outputs_sha256": sums})
+}
+
+// catchInterrupts makes an interrupt that reaches the test process
+// harmless (it would otherwise end the tests once no watch holds it) and
+// replaces stopOnInterrupt: the returned channel receives each interrupt
+// that would have stopped the command.
+func catchInterrupts(t *testing.T) <-chan os.Signal {
+	t.Helper()
 	got := make(chan os.Signal, 4)
-	signal.Notify(got, os.Interrupt) // so that the interrupt does not stop the test
-	defer signal.Stop(got)
+	signal.Notify(got, os.Interrupt)
+	stops := make(chan os.Signal, 4)
+	stopOnInterrupt = func(s os.Signal) { stops <- s }
+	t.Cleanup(func() {
+		stopOnInterrupt = stopByDefault
+		afterTemp = nil
+		signal.Stop(got)
+	})
+	return stops
+}
+
+var stopByDefault = stopOnInterrupt
+
+// interruptSelf sends the process an interrupt and gives it time to arrive.
+func interruptSelf() {
+	p, _ := os.FindProcess(os.Getpid())
+	p.Signal(os.Interrupt)
+	time.Sleep(50 * time.Millisecond)
+}
+
+// stoppedWith waits for the command to be stopped by an interrupt and
+// returns what it said on stderr.
+func stoppedWith(t *testing.T, stops <-chan os.Signal, stderr *bytes.Buffer) string {
+	t.Helper()
+	select {
+	case s := <-stops:
+		if s != os.Interrupt {
+			t.Errorf("stopped by %v", s)
+		}
+	case <-time.After(5 * time.Second):
+		t.Fatal("the interrupt did not stop the command")
+	}
+	return stderr.String()
+}
+
+// folderNames lists the entries of dir but the lock file.
+func folderNames(t *testing.T, dir string) []string {
+	t.Helper()
+	entries, err := os.ReadDir(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var out []string
+	for _, e := range entries {
+		if e.Name() != lockFile {
+			out = append(out, e.Name())
+		}
+	}
+	return out
+}
+
+// An interrupt that arrives while the outputs are written is held until
+// the whole folder is changed: this run's files in place and the earlier
+// run's outputs it no longer writes (here the predictions of an outcome
+// no longer predicted) removed, so that the folder holds exactly what the
+// new run.json lists, and no temporary file. Then it stops the command
+// with a line saying so.
+func TestInterruptHeldDuringWrite(t *testing.T) {
+	stops := catchInterrupts(t)
+	dir := t.TempDir()
+	first := map[string][]byte{"report.md": []byte("first\n"), "predictions-safety.csv": []byte("p\n")}
+	l, err := claimOutput(dir, "run", []string{"report.md"}, io.Discard)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := writeOutputs(l, dir, first, testRecord); err != nil {
+		t.Fatal(err)
+	}
+	l.Unlock()
+
+	var stderr bytes.Buffer
+	l, err = claimOutput(dir, "run", []string{"report.md"}, &stderr)
+	if err != nil {
+		t.Fatal(err)
+	}
 	sent := false
 	afterTemp = func() {
 		if !sent {
 			sent = true
-			p, _ := os.FindProcess(os.Getpid())
-			p.Signal(os.Interrupt)
-			time.Sleep(50 * time.Millisecond) // let it arrive while writing
+			interruptSelf()
 		}
 	}
-	defer func() { afterTemp = nil }()
-	files := map[string][]byte{"a.md": []byte("a\n"), "b.md": []byte("b\n"), "run.json": []byte("{}\n")}
-	if err := writeAll(dir, []string{"a.md", "b.md", "run.json"}, files); err != nil {
+	second := map[string][]byte{"report.md": []byte("second\n")}
+	if err := writeOutputs(l, dir, second, testRecord); err != nil {
 		t.Fatal(err)
 	}
-	for n, c := range files {
-		if b, err := os.ReadFile(filepath.Join(dir, n)); err != nil || string(b) != string(c) {
-			t.Errorf("%s: %q %v", n, b, err)
-		}
+	msg := stoppedWith(t, stops, &stderr)
+	l.Unlock()
+	if want := "ordplan run: interrupted while writing its outputs, and stopped once they were all in place; output folder " + dir + ": this run's complete outputs, as its run.json lists them\n"; msg != want {
+		t.Errorf("stderr %q, want %q", msg, want)
+	}
+	rec := previousOutputs(dir)
+	names := folderNames(t, dir)
+	if !slices.Equal(names, []string{"report.md", "run.json"}) || len(rec) != 1 || rec["report.md"] != sha256Hex(second["report.md"]) {
+		t.Errorf("the folder holds %v; run.json lists %v", names, rec)
+	}
+	// The next run into the folder is not refused.
+	l, err = claimOutput(dir, "run", []string{"report.md"}, io.Discard)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := writeOutputs(l, dir, first, testRecord); err != nil {
+		t.Errorf("the next run: %v", err)
+	}
+	l.Unlock()
+}
+
+// An interrupt before the write stops the command at once and says that
+// the folder holds what it held (the earlier run's outputs, or nothing of
+// the command's); one after the write says that it holds the run's
+// complete outputs; one during a write that fails is held until the
+// failure is reported.
+func TestInterruptMessages(t *testing.T) {
+	stops := catchInterrupts(t)
+	dir := filepath.Join(t.TempDir(), "out")
+	files := map[string][]byte{"report.md": []byte("r\n")}
+	var stderr bytes.Buffer
+	l, err := claimOutput(dir, "run", []string{"report.md"}, &stderr)
+	if err != nil {
+		t.Fatal(err)
+	}
+	interruptSelf()
+	if msg, want := stoppedWith(t, stops, &stderr), "ordplan run: interrupted before writing its outputs; output folder "+dir+": no output was written there\n"; msg != want {
+		t.Errorf("stderr %q, want %q", msg, want)
+	}
+	if names := folderNames(t, dir); len(names) != 0 {
+		t.Errorf("the folder holds %v", names)
+	}
+	if err := writeOutputs(l, dir, files, testRecord); err != nil {
+		t.Fatal(err)
+	}
+	stderr.Reset()
+	interruptSelf()
+	if msg, want := stoppedWith(t, stops, &stderr), "ordplan run: interrupted after writing its outputs; output folder "+dir+": this run's complete outputs, as its run.json lists them\n"; msg != want {
+		t.Errorf("stderr %q, want %q", msg, want)
+	}
+	l.Unlock()
+
+	stderr.Reset()
+	l, err = claimOutput(dir, "rehearse", []string{"report.md"}, &stderr)
+	if err == nil || !strings.Contains(err.Error(), "holds the outputs of ordplan run") {
+		t.Fatalf("rehearse into a run's folder: %v", err)
+	}
+	l, err = claimOutput(dir, "run", []string{"report.md"}, &stderr)
+	if err != nil {
+		t.Fatal(err)
+	}
+	interruptSelf()
+	if msg, want := stoppedWith(t, stops, &stderr), "ordplan run: interrupted before writing its outputs; output folder "+dir+": unchanged, it holds the earlier run's outputs as they were\n"; msg != want {
+		t.Errorf("stderr %q, want %q", msg, want)
+	}
+
+	// A write that fails (a name the file system refuses) with an
+	// interrupt held: nothing is said until the lock is released, after
+	// the command reported the failure.
+	stderr.Reset()
+	long := strings.Repeat("x", 300)
+	afterTemp = interruptSelf
+	if err := writeOutputs(l, dir, map[string][]byte{"report.md": []byte("new\n"), long: nil}, testRecord); err == nil {
+		t.Fatal("no error for a name too long")
+	}
+	afterTemp = nil
+	if stderr.Len() != 0 {
+		t.Errorf("said before the failure was reported: %q", stderr.String())
+	}
+	l.Unlock()
+	if msg, want := stoppedWith(t, stops, &stderr), "ordplan run: interrupted after the failure above\n"; msg != want {
+		t.Errorf("stderr %q, want %q", msg, want)
+	}
+	if b, _ := os.ReadFile(filepath.Join(dir, "report.md")); string(b) != "r\n" {
+		t.Errorf("report.md is %q after the failed write", b)
 	}
 	if left, _ := filepath.Glob(filepath.Join(dir, ".*.tmp-*")); len(left) > 0 {
 		t.Errorf("temporary files left: %v", left)
-	}
-	// The interrupt itself, and the one delivered again after the write.
-	for i := 0; i < 2; i++ {
-		select {
-		case <-got:
-		case <-time.After(5 * time.Second):
-			t.Fatalf("interrupt %d not delivered", i+1)
-		}
 	}
 }
 
@@ -199,7 +356,7 @@ func TestClaimRemovesTemporaries(t *testing.T) {
 	for _, n := range append(slices.Clone(stale), kept...) {
 		os.WriteFile(filepath.Join(dir, n), []byte("x"), 0o644)
 	}
-	l, err := claimOutput(dir, "run", []string{"report.md"})
+	l, err := claimOutput(dir, "run", []string{"report.md"}, io.Discard)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -110,7 +110,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 		base := filepath.Base(planPath)
 		dir = filepath.Join("out", base[:len(base)-len(filepath.Ext(base))])
 	}
-	lock, err := claimOutput(dir, "run", render.ReportFiles)
+	lock, err := claimOutput(dir, "run", render.ReportFiles, stderr)
 	if err != nil {
 		return fail(stderr, err)
 	}
@@ -140,7 +140,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
-	if err := writeRun(res, "run", dir, files); err != nil {
+	if err := writeRun(lock, res, "run", dir, files); err != nil {
 		return fail(stderr, err)
 	}
 	fmt.Fprintln(stdout, registrationLine(reg))

@@ -68,7 +68,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		base := filepath.Base(planPath)
 		dir = filepath.Join("out", base[:len(base)-len(filepath.Ext(base))]+"-power")
 	}
-	olock, err := claimOutput(dir, "power", render.PowerFiles)
+	olock, err := claimOutput(dir, "power", render.PowerFiles, stderr)
 	if err != nil {
 		return fail(stderr, err)
 	}
@@ -103,7 +103,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		return fail(stderr, err)
 	}
 	command := commandLine(append([]string{"ordplan", "power"}, resultArgs(rawArgs)...))
-	err = writeOutputs(dir, files, func(files map[string][]byte) ([]byte, error) {
+	err = writeOutputs(olock, dir, files, func(files map[string][]byte) ([]byte, error) {
 		return runner.SimulationRunJSON(p, command, files)
 	})
 	if err != nil {

@@ -53,7 +53,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 		base := filepath.Base(planPath)
 		dir = filepath.Join("out", base[:len(base)-len(filepath.Ext(base))]+"-rehearsal")
 	}
-	olock, err := claimOutput(dir, "rehearse", slices.Concat(render.ReportFiles, []string{simulatedFile}))
+	olock, err := claimOutput(dir, "rehearse", slices.Concat(render.ReportFiles, []string{simulatedFile}), stderr)
 	if err != nil {
 		return fail(stderr, err)
 	}
@@ -98,7 +98,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 		return fail(stderr, err)
 	}
 	files[simulatedFile] = buf.Bytes()
-	if err := writeRun(res, "rehearse", dir, files); err != nil {
+	if err := writeRun(olock, res, "rehearse", dir, files); err != nil {
 		return fail(stderr, err)
 	}
 	fmt.Fprintf(stdout, "%s: %d rows simulated from the plan's assumptions\n", render.SimulatedMark, rows)

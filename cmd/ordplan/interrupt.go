@@ -1,0 +1,165 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"os"
+	"os/signal"
+	"sync"
+	"syscall"
+	"time"
+)
+
+// folderStage is where a command holding an output folder stands, which
+// decides what an interrupt does and what its message says the folder
+// holds.
+type folderStage int
+
+const (
+	beforeWrite folderStage = iota // the folder holds what it held when claimed
+	committing                     // the outputs are being written (held)
+	written                        // the folder holds this run's complete outputs
+	writeFailed                    // the write failed; its error says what the folder holds
+)
+
+// interruptWatch catches the interrupts (Ctrl-C, SIGINT; SIGTERM) that
+// reach a command while it holds an output folder (from claimOutput to
+// Unlock). Before and after the write the command stops at once with one
+// line on stderr saying what the folder holds; during the write (commit)
+// the interrupt is held until the folder is complete, then stops the
+// command with that line. A write that fails holds it until Unlock, so
+// that the failure is reported first.
+type interruptWatch struct {
+	command, dir string
+	hadRecord    bool // the folder held an earlier run's outputs (a run.json) when claimed
+	stderr       io.Writer
+
+	signals chan os.Signal
+	ended   chan struct{}
+	done    sync.WaitGroup
+
+	mu      sync.Mutex
+	stage   folderStage
+	pending os.Signal // an interrupt held during the write
+}
+
+// stopOnInterrupt ends the process as the interrupt s would have, had it
+// not been caught: by the signal itself where the system delivers it to
+// the process (so that a shell sees an interrupted command), else with
+// exit code 128 + its number. Tests replace it.
+var stopOnInterrupt = func(s os.Signal) {
+	signal.Reset(s)
+	if p, err := os.FindProcess(os.Getpid()); err == nil && p.Signal(s) == nil {
+		time.Sleep(time.Second)
+	}
+	code := 130
+	if n, ok := s.(syscall.Signal); ok {
+		code = 128 + int(n)
+	}
+	os.Exit(code)
+}
+
+// watchInterrupts starts the watch for command (run, rehearse, power)
+// over the output folder dir; hadRecord tells whether dir held an earlier
+// run's outputs.
+func watchInterrupts(command, dir string, hadRecord bool, stderr io.Writer) *interruptWatch {
+	w := &interruptWatch{command: command, dir: dir, hadRecord: hadRecord, stderr: stderr,
+		signals: make(chan os.Signal, 1), ended: make(chan struct{})}
+	signal.Notify(w.signals, os.Interrupt, syscall.SIGTERM)
+	w.done.Add(1)
+	go w.watch()
+	return w
+}
+
+func (w *interruptWatch) watch() {
+	defer w.done.Done()
+	for {
+		select {
+		case s := <-w.signals:
+			w.mu.Lock()
+			if w.stage == committing || w.stage == writeFailed {
+				if w.pending == nil {
+					w.pending = s
+				}
+			} else {
+				w.stop(s)
+			}
+			w.mu.Unlock()
+		case <-w.ended:
+			return
+		}
+	}
+}
+
+// stop says what the folder holds and ends the command (stopOnInterrupt).
+// The caller holds w.mu, so that the stage cannot change meanwhile.
+func (w *interruptWatch) stop(s os.Signal) {
+	fmt.Fprintln(w.stderr, w.message(s))
+	stopOnInterrupt(s)
+}
+
+// message is the line an interrupt leaves on stderr at the current stage.
+func (w *interruptWatch) message(s os.Signal) string {
+	lead := "\n" // ends a progress line rewritten in place on a terminal
+	if w.stderr != io.Writer(os.Stderr) || !isTerminal(os.Stderr) {
+		lead = ""
+	}
+	what := "interrupted"
+	if s == syscall.SIGTERM {
+		what = "stopped (SIGTERM)"
+	}
+	head := lead + "ordplan " + w.command + ": " + what
+	switch w.stage {
+	case beforeWrite:
+		if w.hadRecord {
+			return fmt.Sprintf("%s before writing its outputs; output folder %s: unchanged, it holds the earlier run's outputs as they were", head, w.dir)
+		}
+		return fmt.Sprintf("%s before writing its outputs; output folder %s: no output was written there", head, w.dir)
+	case writeFailed:
+		return head + " after the failure above"
+	}
+	if w.pending != nil {
+		return fmt.Sprintf("%s while writing its outputs, and stopped once they were all in place; output folder %s: this run's complete outputs, as its run.json lists them", head, w.dir)
+	}
+	return fmt.Sprintf("%s after writing its outputs; output folder %s: this run's complete outputs, as its run.json lists them", head, w.dir)
+}
+
+// commit runs write, the whole change of the output folder (the new files
+// renamed into place and the earlier run's outdated outputs removed), with
+// interrupts held: one that arrives meanwhile stops the command only once
+// write has returned, so that the folder is never left half changed (nor
+// with temporary files in it).
+func (l *outputLock) commit(write func() error) error {
+	if l == nil || l.w == nil { // a bare lockOutput (tests)
+		return write()
+	}
+	w := l.w
+	w.mu.Lock()
+	w.stage = committing
+	w.mu.Unlock()
+	err := write()
+	w.mu.Lock()
+	defer w.mu.Unlock()
+	if err != nil {
+		w.stage = writeFailed
+		return err
+	}
+	if w.pending != nil {
+		w.stop(w.pending)
+	}
+	w.stage = written
+	return nil
+}
+
+// end stops the watch; an interrupt held since a failed write then stops
+// the command (its error already reported).
+func (w *interruptWatch) end() {
+	signal.Stop(w.signals)
+	close(w.ended)
+	w.done.Wait()
+	w.mu.Lock()
+	defer w.mu.Unlock()
+	if w.pending != nil {
+		w.stop(w.pending)
+	}
+}
