@@ -38,8 +38,10 @@ func PartitionedChecks(s SingleFit, res *fit.Result, parts []string, whole fit.W
 		}
 	}
 	var spread fit.EtaSpread
+	part := dopt
+	part.Part = true // its subset values were judged on all parts (queue.PartitionFiles)
 	for _, p := range parts {
-		ds, err := data.Load(p, dopt)
+		ds, err := data.Load(p, part)
 		if err != nil {
 			return nil, err
 		}

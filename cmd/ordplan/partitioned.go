@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"io"
+	"strings"
 
 	"ordplan/render"
 	"ordplan/runner"
@@ -66,8 +67,11 @@ func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, std
 	if err != nil {
 		return fail(stderr, err)
 	}
-	sum := render.DataSummary{File: s.DataName(), Outcome: s.Outcome, RowsRead: read, RowsUsed: whole.Rows,
-		DropSummary: fmt.Sprintf("%d rows dropped for missing values or zero weight", read-whole.Rows)}
+	drop := fmt.Sprintf("%d rows dropped for missing values or zero weight", read-whole.Rows)
+	for _, n := range whole.Notes {
+		drop += "; " + strings.TrimSuffix(n, ".")
+	}
+	sum := render.DataSummary{File: s.DataName(), Outcome: s.Outcome, RowsRead: read, RowsUsed: whole.Rows, DropSummary: drop}
 	if err := f.print(stdout, res, sum, base, checks); err != nil {
 		return fail(stderr, err)
 	}

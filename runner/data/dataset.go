@@ -62,6 +62,9 @@ type Dataset struct {
 	// Parts are the files of a data set read as parts (LoadFiles), with
 	// the numbering of their lines in Lines; nil for one file.
 	Parts []PartSpan
+	// ListSeen are the values the columns of one_of and none_of
+	// conditions hold, for a part read alone (Options.Part); nil otherwise.
+	ListSeen ListValues
 }
 
 // MissingTable is the missing-value pattern of the used columns (outcome,

@@ -432,7 +432,7 @@ func (t *rowTally) fork() *rowTally {
 	for col, seen := range t.levelSeen {
 		f.levelSeen[col] = make([]float64, len(seen))
 	}
-	f.listSeen = make([]map[string]bool, len(t.listSeen))
+	f.listSeen = make(ListValues, len(t.listSeen))
 	for i, seen := range t.listSeen {
 		if seen != nil {
 			f.listSeen[i] = map[string]bool{}
@@ -454,13 +454,7 @@ func (t *rowTally) join(c *rowTally) {
 	for i, n := range c.subsetDrops {
 		t.subsetDrops[i] += n
 	}
-	for i, seen := range c.listSeen {
-		for v := range seen {
-			if len(t.listSeen[i]) < maxListValues {
-				t.listSeen[i][v] = true
-			}
-		}
-	}
+	t.listSeen.Add(c.listSeen)
 	t.zeroWeight += c.zeroWeight
 	for k, n := range c.patterns {
 		t.patterns[k] += n

@@ -47,6 +47,12 @@ type Options struct {
 	ColumnMissing map[string][]string `json:"column_missing"`
 	// Dialect is the file's delimiter and decimal mark (zero: comma, point).
 	Dialect Dialect `json:"dialect"`
+	// Part says the file is one part of data read part by part, each part
+	// alone (a partitioned run): the values of one_of and none_of
+	// conditions are not judged on the part, which may lack values the
+	// other parts hold, but kept in Dataset.ListSeen, to be judged once
+	// over all parts (CheckListValues), as for the data in one file.
+	Part bool `json:"-"`
 }
 
 // DefaultMissing are the missing-value tokens used when

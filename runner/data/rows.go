@@ -131,7 +131,7 @@ type rowTally struct {
 	pat           []byte                    // the current row's pattern
 	xs            []float64                 // the current row's predictor values
 	clusters      map[string]string         // one copy of each cluster id kept
-	listSeen      []map[string]bool         // per one_of/none_of condition: the values its column holds (nil: other conditions)
+	listSeen      ListValues                // per one_of/none_of condition: the values its column holds (nil: other conditions)
 }
 
 // cells is one parsed row.
@@ -164,7 +164,7 @@ func (r *reader) newRowTally(K int) *rowTally {
 	for i, l := range opt.Categories {
 		t.labels[l] = i
 	}
-	t.listSeen = make([]map[string]bool, len(opt.Keep))
+	t.listSeen = make(ListValues, len(opt.Keep))
 	for i, k := range opt.Keep {
 		t.condCol[i] = slices.IndexFunc(r.cols, func(c usedCol) bool { return c.name == k.Column })
 		if k.Op == "in" || k.Op == "not_in" {
@@ -624,27 +624,60 @@ func missingPatterns(cols []usedCol, patterns map[string]int) *MissingTable {
 // set of levels, and its values are not checked.
 const maxListValues = 1000
 
-// unknownListValues looks at each value of a one_of or none_of condition
-// that no row of its column holds (missing or not, inside the subset or
-// not) and that is not a declared level of the column. When it is another
-// value written differently (case, spaces, punctuation: "Cul-de-sac" for
-// "cul_de_sac"), it is refused, because the misspelt value keeps or drops
-// other rows than meant; otherwise (a value listed in case it occurs) the
-// data set gets a note that it matched no row.
+// ListValues are, per condition of Options.Keep, the values the column
+// of a one_of or none_of condition holds (nil for the other conditions),
+// at most maxListValues of them.
+type ListValues []map[string]bool
+
+// Add adds the values of o (the same conditions) to l.
+func (l ListValues) Add(o ListValues) {
+	for i, seen := range o {
+		for v := range seen {
+			if len(l[i]) < maxListValues {
+				l[i][v] = true
+			}
+		}
+	}
+}
+
+// unknownListValues judges the values of the one_of and none_of
+// conditions on the values the file holds (CheckListValues), unless the
+// file is one part of data read part by part (Options.Part): then it
+// keeps them in d.ListSeen, to be judged once over all parts.
 func (r *reader) unknownListValues(t *rowTally, d *Dataset) error {
-	for i, seen := range t.listSeen {
+	if r.opt.Part {
+		d.ListSeen = t.listSeen
+		return nil
+	}
+	notes, err := CheckListValues(r.file, r.opt, t.listSeen)
+	d.Notes = append(d.Notes, notes...)
+	return err
+}
+
+// CheckListValues looks at each value of a one_of or none_of condition
+// that no row of its column holds (seen: the values of the whole data,
+// missing or not, inside the subset or not) and that is not a declared
+// level of the column. When it is another value written differently
+// (case, spaces, punctuation: "Cul-de-sac" for "cul_de_sac"), it is
+// refused, because the misspelt value keeps or drops other rows than
+// meant; otherwise (a value listed in case it occurs) it returns a note
+// that it matched no row. file names the data in the error.
+func CheckListValues(file string, opt Options, seen ListValues) ([]string, error) {
+	missing := opt.missingSet()
+	var notes []string
+	for i, seen := range seen {
 		if seen == nil || len(seen) >= maxListValues {
 			continue
 		}
-		k := r.opt.Keep[i]
-		declared := r.opt.PredictorLevels[k.Column]
+		k := opt.Keep[i]
+		declared := opt.PredictorLevels[k.Column]
 		for _, v := range k.Values {
 			if seen[v] || slices.Contains(declared, v) {
 				continue
 			}
 			var near []string
 			for h := range seen {
-				if h != "" && !r.missing[h] && LooseText(h) == LooseText(v) {
+				if h != "" && !missing[h] && LooseText(h) == LooseText(v) {
 					near = append(near, h)
 				}
 			}
@@ -654,19 +687,17 @@ func (r *reader) unknownListValues(t *rowTally, d *Dataset) error {
 				}
 			}
 			if len(near) == 0 {
-				d.Notes = append(d.Notes, fmt.Sprintf("The subset condition %s (%s) names %s, which no row of column %s holds: it keeps or drops no row", k.String(), k.Key, strconv.Quote(v), k.Column))
+				notes = append(notes, fmt.Sprintf("The subset condition %s (%s) names %s, which no row of column %s holds: it keeps or drops no row", k.String(), k.Key, strconv.Quote(v), k.Column))
 				continue
 			}
 			slices.Sort(near)
 			for j := range near {
 				near[j] = strconv.Quote(near[j])
 			}
-			e := r.fail(0, k.Column, "the subset condition %s names the value %s, which no row of the column holds and which is not a declared level; the column holds %s, written differently: a misspelt value keeps or drops other rows than meant, write it as the data do", k.String(), strconv.Quote(v), strings.Join(near, " and "))
-			e.Key = k.Key
-			return e
+			return notes, &Error{File: file, Column: k.Column, Key: k.Key, Msg: fmt.Sprintf("the subset condition %s names the value %s, which no row of the column holds and which is not a declared level; the column holds %s, written differently: a misspelt value keeps or drops other rows than meant, write it as the data do", k.String(), strconv.Quote(v), strings.Join(near, " and "))}
 		}
 	}
-	return nil
+	return notes, nil
 }
 
 // LooseText is s in lower case with only its letters and digits: two

@@ -84,6 +84,9 @@ type Whole struct {
 	// it, a fit whose coefficients grow implausibly large is probed for a
 	// direction of rising likelihood, as a local fit is.
 	Spread *Spread
+	// Notes are remarks on the whole data the user must see (a value of a
+	// subset condition no row holds).
+	Notes []string
 }
 
 // Spread is the weighted mean and sum of squared deviations of each

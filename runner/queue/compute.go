@@ -98,7 +98,9 @@ func (w *Worker) partition(ctx context.Context, p *PartitionTask, cut bool) (*fi
 			return nil, fmt.Errorf("partition %s: %v", p.Name, err)
 		}
 		defer f.Close()
-		ds, err := data.Read(f, p.Name, p.DataOptions)
+		o := p.DataOptions
+		o.Part = true // its subset values were judged on all parts (PartitionFiles)
+		ds, err := data.Read(f, p.Name, o)
 		if err != nil {
 			return nil, fmt.Errorf("partition %w", err)
 		}

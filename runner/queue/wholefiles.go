@@ -20,7 +20,9 @@ import (
 // the outcome holds integer codes and the categories are the codes any
 // partition has, sorted (read as numbers: +2 and 02 are 2), which
 // FitPartitioned passes on to the workers (data.Options.Codes). It also
-// returns the number of data rows read.
+// returns the number of data rows read. The values of one_of and none_of
+// subset conditions are judged once on all parts (data.CheckListValues);
+// whole.Notes has the notes.
 func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRef, int, error) {
 	var whole fit.Whole
 	read := 0
@@ -35,12 +37,20 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 		whole.Counts = make([]float64, max(len(dopt.Categories), len(dopt.Codes)))
 	}
 	var refs []PartitionRef
+	var seen data.ListValues // the values of one_of/none_of columns over all parts
+	part := dopt
+	part.Part = true
 	for _, p := range paths {
-		ds, err := data.Load(p, dopt)
+		ds, err := data.Load(p, part)
 		if err != nil {
 			return whole, nil, 0, err
 		}
 		read += ds.RowsRead
+		if seen == nil {
+			seen = ds.ListSeen
+		} else {
+			seen.Add(ds.ListSeen)
+		}
 		if coded {
 			for j, c := range ds.Counts {
 				code, err := strconv.ParseInt(ds.Categories[j], 10, 64)
@@ -62,6 +72,13 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 		}
 		refs = append(refs, PartitionRef{Name: filepath.Base(p), Hash: h, Path: p})
 	}
+	// The values of a one_of or none_of condition are judged on the whole
+	// data, as for one file: a part may lack a value the others hold.
+	notes, err := data.CheckListValues(data.PartsName(paths), dopt, seen)
+	if err != nil {
+		return whole, nil, 0, err
+	}
+	whole.Notes = notes
 	switch {
 	case coded:
 		codes := slices.Sorted(maps.Keys(counts))
