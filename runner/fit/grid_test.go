@@ -3,6 +3,7 @@ package fit
 import (
 	"fmt"
 	"strings"
+	"sync/atomic"
 	"testing"
 )
 
@@ -60,10 +61,10 @@ func TestFitGridSameAsFit(t *testing.T) {
 		}
 		for _, workers := range []int{1, 3} {
 			got := make([]string, len(models))
-			calls := 0
+			var calls atomic.Int32 // done is called from the fits' goroutines
 			FitGrid(d, models, Options{Workers: 2}, workers, func(i int, r *Result, err error) {
 				got[i] = dumpResult(r, err)
-				calls++
+				calls.Add(1)
 				if r != nil {
 					for k := range r.Cov {
 						r.Cov[k] = -1
@@ -71,8 +72,8 @@ func TestFitGridSameAsFit(t *testing.T) {
 					r.Estimates[0] = 99
 				}
 			})
-			if calls != len(models) {
-				t.Errorf("n = %d, %d at once: %d calls for %d models", n, workers, calls, len(models))
+			if int(calls.Load()) != len(models) {
+				t.Errorf("n = %d, %d at once: %d calls for %d models", n, workers, calls.Load(), len(models))
 			}
 			for i := range models {
 				if got[i] != want[i] {
