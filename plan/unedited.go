@@ -1,6 +1,7 @@
 package plan
 
 import (
+	"fmt"
 	"regexp"
 	"sort"
 	"strings"
@@ -27,8 +28,9 @@ var markerWord = regexp.MustCompile(`\b` + EditMarker + `\b`)
 // written); freeze refuses them and check and run warn.
 func (d *decoder) unedited(src []byte, root *yaml.Node) []*Error {
 	var out []*Error
-	keyAt := d.keysByLine()
-	for i, line := range strings.Split(string(src), "\n") {
+	keyAt := keysByLine(root)
+	lines := strings.Split(string(src), "\n")
+	for i, line := range lines {
 		at := commentStart(line)
 		if at < 0 {
 			continue
@@ -56,7 +58,17 @@ func (d *decoder) unedited(src []byte, root *yaml.Node) []*Error {
 		for strings.HasSuffix(ask, ")") && strings.Count(ask, ")") > strings.Count(ask, "(") {
 			ask = ask[:len(ask)-1] // the parenthesis the marker sits in
 		}
-		out = append(out, &Error{File: d.file, Line: i + 1, Col: at + loc[0] + 1, Key: keyAt[i+1],
+		key := keyAt[i+1]
+		if strings.TrimSpace(line[:at]) == "" {
+			// A comment of its own: about the key right below it.
+			for j := i + 1; j < len(lines); j++ {
+				if c := commentStart(lines[j]); c < 0 || strings.TrimSpace(lines[j][:c]) != "" {
+					key = keyAt[j+1]
+					break
+				}
+			}
+		}
+		out = append(out, &Error{File: d.file, Line: i + 1, Col: at + loc[0] + 1, Key: key,
 			Msg: "still marked by ordplan init (" + quoteAsk(ask) + "): check the line, then delete the marker"})
 	}
 	var walk func(n *yaml.Node)
@@ -91,24 +103,38 @@ func quoteAsk(s string) string {
 	return `"` + s + `"`
 }
 
-// keysByLine gives, for each line on which a key's value starts, the
-// shortest key path recorded there (the key the line is about: the
-// dictionary entry rather than its range). A block mapping or sequence
-// starts on the line of its first entry, which is not about the block as
-// a whole: those are left out.
-func (d *decoder) keysByLine() map[int]string {
+// keysByLine gives, for each line on which a key is written, the path of
+// the first key there (the one the line is about: the dictionary entry
+// rather than its range), in the form of the plan's messages
+// (outcomes[0].categories).
+func keysByLine(root *yaml.Node) map[int]string {
 	out := map[int]string{}
-	for path, n := range d.nodes {
-		if path == "" || n == nil {
-			continue
-		}
-		if (n.Kind == yaml.MappingNode || n.Kind == yaml.SequenceNode) && n.Style&yaml.FlowStyle == 0 {
-			continue
-		}
-		if k, ok := out[n.Line]; !ok || len(path) < len(k) || (len(path) == len(k) && path < k) {
-			out[n.Line] = path
+	var walk func(n *yaml.Node, path string)
+	walk = func(n *yaml.Node, path string) {
+		switch n.Kind {
+		case yaml.MappingNode:
+			for i := 0; i+1 < len(n.Content); i += 2 {
+				k := n.Content[i]
+				p := k.Value
+				if path != "" {
+					p = path + "." + k.Value
+				}
+				if _, ok := out[k.Line]; !ok {
+					out[k.Line] = p
+				}
+				walk(n.Content[i+1], p)
+			}
+		case yaml.SequenceNode:
+			for i, c := range n.Content {
+				p := fmt.Sprintf("%s[%d]", path, i)
+				if _, ok := out[c.Line]; !ok && c.Kind != yaml.MappingNode {
+					out[c.Line] = p
+				}
+				walk(c, p)
+			}
 		}
 	}
+	walk(root, "")
 	return out
 }
 

@@ -27,7 +27,8 @@ func TestInitSkeleton(t *testing.T) {
 	text, _ := os.ReadFile(planPath)
 	for _, want := range []string{
 		"file: data/trial.csv",
-		"#   grade   integer codes 1, 2, 3 (3 values): ordered categories, or a count?  <- outcome (guessed: EDIT)",
+		"#   grade   integer codes 1, 2, 3 (3 values): ordered categories, or a count?  <- outcome (guessed: see outcomes)",
+		"  - column: grade   # EDIT: guessed from the columns; check that it is the outcome",
 		"#   dose    numeric from 0.5 to 2; 1 of 5 missing",
 		"#   smoker  numeric 0/1",
 		"#   site    text, 3 values: north, south, east (categorical; ordered?)",

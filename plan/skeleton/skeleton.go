@@ -119,7 +119,7 @@ func Write(in Input) ([]byte, error) {
 
 	var b strings.Builder
 	w := func(format string, a ...any) { fmt.Fprintf(&b, format+"\n", a...) }
-	source := "its header line"
+	source := ""
 	if in.HaveData {
 		rows := 0
 		if len(in.Columns) > 0 {
@@ -127,7 +127,13 @@ func Write(in Input) ([]byte, error) {
 		}
 		source = fmt.Sprintf("%d data rows", rows)
 	}
-	w("# Analysis plan started by `ordplan init` from %s (%s).", in.DataFile, source)
+	from := in.DataFile
+	if in.HaveData {
+		w("# Analysis plan started by `ordplan init` from %s (%s).", from, source)
+	} else {
+		from = "the header line" // in.DataFile is then the placeholder of data.file
+		w("# Analysis plan started by `ordplan init` from a header line.")
+	}
 	w("# Edit every line marked EDIT, read the others, then check and freeze the plan")
 	w("# before the data are analysed:")
 	w("#   ordplan check PLAN.yaml --no-data      (or without --no-data once the data exist)")
@@ -137,7 +143,7 @@ func Write(in Input) ([]byte, error) {
 	w("title: EDIT the title of the report")
 	w("seed: 1                  # fixes every random draw (constrained-model starts, simulations)")
 	w("")
-	w("# The columns of %s and what they seem to be:", in.DataFile)
+	w("# The columns of %s and what they seem to be:", from)
 	width := 0
 	for _, c := range in.Columns {
 		width = max(width, len(c.Name))
@@ -146,7 +152,7 @@ func Write(in Input) ([]byte, error) {
 		role := ""
 		switch {
 		case i == outcome && guessed:
-			role = "  <- outcome (guessed: EDIT)"
+			role = "  <- outcome (guessed: see outcomes)"
 		case i == outcome:
 			role = "  <- outcome"
 		case contains(skipped, c.Name):
@@ -167,7 +173,11 @@ func Write(in Input) ([]byte, error) {
 	w("outcomes:")
 	if outcome >= 0 {
 		c := in.Columns[outcome]
-		w("  - column: %s", yamlString(c.Name))
+		if guessed {
+			w("  - column: %s   # EDIT: guessed from the columns; check that it is the outcome", yamlString(c.Name))
+		} else {
+			w("  - column: %s", yamlString(c.Name))
+		}
 		switch {
 		case in.HaveData && kinds[outcome].Candidate && !c.Numeric:
 			w("    categories: [%s]   # EDIT: put them in order, lowest first", yamlList(c.Values))
@@ -215,7 +225,7 @@ func Write(in Input) ([]byte, error) {
 			case k.Word == "numeric":
 				w("%s{range: [%s, %s], label: null, unit: null}   # EDIT: the possible range (observed %s to %s)", key, num(c.Min), num(c.Max), num(c.Min), num(c.Max))
 			default:
-				w("%s{range: null, label: null, unit: null}   # EDIT", key)
+				w("%s{range: null, label: null, unit: null}   # EDIT: the possible range (or values), label and unit", key)
 			}
 		}
 		w("")
