@@ -63,6 +63,13 @@ func (d *decoder) checkPartial(p *Plan) {
 	if hasGroups && hasSelect && !hasFree {
 		d.errAt("models.partial.groups", "groups split a listed free set; they cannot be used with select")
 	}
+	if sel := pa.Select; hasSelect && sel != nil && p.Data.Sampling() && sel.Test.NeedsLikelihood() && d.clean("data") {
+		key := "models.partial.select"
+		if d.given(key + ".test") {
+			key += ".test"
+		}
+		d.errAt(key, "the %s test needs a likelihood, but with sampling weights (data.weight_kind: sampling) the fits maximize a pseudo-likelihood; use test: wald (the default)", sel.Test.Title())
+	}
 	if d.predictorsKnown(p) {
 		for _, f := range pa.Free {
 			if !p.hasTerm(f) {

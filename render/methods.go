@@ -136,8 +136,12 @@ func writeMethods(d *doc, r *runner.Result) {
 			s = append(s, fmt.Sprintf("The predictors allowed non-parallel effects were selected by backward stepwise imposition of parallel constraints with %s tests at alpha = %g %s.", sel.Test.Title(), sel.Alpha, c.cite("williams")))
 		}
 		if len(p.Tests.ParallelLines) > 0 {
-			var tests []string
+			var tests, barred []string
 			for _, t := range p.Tests.ParallelLines {
+				if r.Analysis.Errors.Sampling && t.NeedsLikelihood() {
+					barred = append(barred, t.Title())
+					continue
+				}
 				switch t {
 				case fit.TestBrant:
 					tests = append(tests, "Brant "+c.cite("brant"))
@@ -147,7 +151,12 @@ func writeMethods(d *doc, r *runner.Result) {
 					tests = append(tests, t.Title())
 				}
 			}
-			s = append(s, fmt.Sprintf("The parallel-lines assumption was tested by %s tests (alpha = %g), overall and for each predictor.", joinAnd(tests), p.Tests.Alpha))
+			if len(tests) > 0 {
+				s = append(s, fmt.Sprintf("The parallel-lines assumption was tested by %s tests (alpha = %g), overall and for each predictor.", joinAnd(tests), p.Tests.Alpha))
+			}
+			if len(barred) > 0 {
+				s = append(s, fmt.Sprintf("The %s tests of the parallel-lines assumption the plan asks for were not computed: with sampling weights the fits maximize a pseudo-likelihood, which gives them no chi-square reference.", joinAnd(barred)))
+			}
 		}
 		cov := r.Analysis.Errors.Covariance.Phrase()
 		if strings.Contains(cov, "sandwich") {
