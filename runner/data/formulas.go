@@ -101,7 +101,7 @@ func readXML(f *zip.File, v any) bool {
 }
 
 // scanFormulas finds the formula cells of a worksheet's XML without a
-// saved value (no <v> element, or an empty one), by the bytes: a sheet
+// saved value (no <v> element; an empty one is a saved empty text), by the bytes: a sheet
 // without formulas costs one search.
 func scanFormulas(x []byte) map[int]map[int]string {
 	root := bytes.Index(x, []byte("worksheet"))
@@ -111,7 +111,7 @@ func scanFormulas(x []byte) map[int]map[int]string {
 	}
 	prefix := string(x[lt+1 : root]) // "" or a namespace prefix such as "x:"
 	openF, openC, endC := []byte("<"+prefix+"f"), []byte("<"+prefix+"c "), []byte("</"+prefix+"c>")
-	openV, endV, endF := []byte("<"+prefix+"v"), []byte("</"+prefix+"v>"), []byte("</"+prefix+"f>")
+	openV, endF := []byte("<"+prefix+"v"), []byte("</"+prefix+"f>")
 	var out map[int]map[int]string
 	for at := 0; ; {
 		i := bytes.Index(x[at:], openF)
@@ -129,7 +129,7 @@ func scanFormulas(x []byte) map[int]map[int]string {
 			return out
 		}
 		cell := x[i : at+e]
-		if hasValue(cell, openV, endV) {
+		if hasValue(cell, openV) {
 			continue
 		}
 		tag := x[s:i]
@@ -156,16 +156,17 @@ func scanFormulas(x []byte) map[int]map[int]string {
 	}
 }
 
-// hasValue reports whether a cell's XML (from its formula on) holds a
-// non-empty <v> element.
-func hasValue(cell, openV, endV []byte) bool {
+// hasValue reports whether a cell's XML (from its formula on) holds a <v>
+// element, the formula's saved result. An empty one (<v></v>, <v/>) is a
+// saved empty text, as a formula such as =IF(C2="","",C2) gives: the cell
+// is empty, as excelize reads it, not a formula without its value.
+func hasValue(cell, openV []byte) bool {
 	v := bytes.Index(cell, openV)
-	if v < 0 || v+len(openV) >= len(cell) || !(cell[v+len(openV)] == '>' || cell[v+len(openV)] == ' ') {
+	if v < 0 || v+len(openV) >= len(cell) {
 		return false
 	}
-	gt := bytes.IndexByte(cell[v:], '>')
-	end := bytes.Index(cell[v:], endV)
-	return gt >= 0 && end > gt+1
+	c := cell[v+len(openV)]
+	return c == '>' || c == ' ' || c == '/'
 }
 
 // cellRef reads the r="C12" attribute of a cell's start tag.

@@ -1,7 +1,9 @@
 package data
 
 import (
+	"archive/zip"
 	"bytes"
+	"io"
 	"strings"
 	"testing"
 
@@ -72,5 +74,68 @@ func TestWorkbookFormulas(t *testing.T) {
 	d, err = readBytes(raw, "f.xlsx", opt)
 	if err != nil || d.N != 4 || d.X[2] != 3 {
 		t.Errorf("error value as a missing-value marker: %v %+v", err, d)
+	}
+}
+
+// withSheetXML is the workbook raw with every old in its first sheet's XML
+// replaced by new.
+func withSheetXML(t *testing.T, raw []byte, old, new string) []byte {
+	t.Helper()
+	zr, err := zip.NewReader(bytes.NewReader(raw), int64(len(raw)))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b bytes.Buffer
+	zw := zip.NewWriter(&b)
+	for _, f := range zr.File {
+		rc, err := f.Open()
+		if err != nil {
+			t.Fatal(err)
+		}
+		body, err := io.ReadAll(rc)
+		rc.Close()
+		if err != nil {
+			t.Fatal(err)
+		}
+		if f.Name == "xl/worksheets/sheet1.xml" {
+			if !bytes.Contains(body, []byte(old)) {
+				t.Fatalf("the sheet has no %s", old)
+			}
+			body = bytes.ReplaceAll(body, []byte(old), []byte(new))
+		}
+		w, err := zw.Create(f.Name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if _, err := w.Write(body); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := zw.Close(); err != nil {
+		t.Fatal(err)
+	}
+	return b.Bytes()
+}
+
+// A formula whose saved result is the empty text (=IF(C5="","",C5), a
+// usual way to leave a cell missing) is saved, as far as we remember the
+// format (from memory), as a t="str" cell with an empty <v> element: its
+// value is saved, and it is the empty text, so the cell is missing, not a
+// formula without its value (re-saving the workbook would not change it).
+// Only a formula without a <v> element has no saved value.
+func TestWorkbookFormulaEmptyResult(t *testing.T) {
+	for _, v := range []string{"<v></v>", "<v/>", `<v xml:space="preserve"></v>`} {
+		x := []byte(`<worksheet><sheetData><row r="2"><c r="D2" t="str"><f>IF(C2="","",C2)</f>` + v + `</c><c r="E2" t="str"><f>C2</f></c></row></sheetData></worksheet>`)
+		if got := scanFormulas(x); len(got) != 1 || len(got[2]) != 1 || got[2][5] != "=C2" {
+			t.Errorf("%s: formulas without a saved value %v, want only E2 (=C2)", v, got)
+		}
+	}
+	old := `<c r="D5" t="str"><f>A5*2&amp;&#34;&lt;&#34;</f></c>`
+	for _, v := range []string{"<v></v>", "<v/>"} {
+		raw := withSheetXML(t, formulaBook(t), old, `<c r="D5" t="str"><f>IF(C5=&#34;&#34;,&#34;&#34;,C5)</f>`+v+`</c>`)
+		d, err := readBytes(raw, "f.xlsx", Options{Outcome: "y", Predictors: []string{"c"}, Dialect: Dialect{Sheet: "s", HeaderRow: 2}})
+		if err != nil || d.N != 4 || len(d.Dropped) != 1 || d.Dropped[0] != (DropCount{Column: "c", Rows: 1}) {
+			t.Errorf("%s: %v %+v, want row 5 dropped as missing in c", v, err, d)
+		}
 	}
 }
