@@ -136,7 +136,7 @@ func writeMethods(d *doc, r *runner.Result) {
 			s = append(s, fmt.Sprintf("The predictors allowed non-parallel effects were selected by backward stepwise imposition of parallel constraints with %s tests at alpha = %g %s.", sel.Test.Title(), sel.Alpha, c.cite("williams")))
 		}
 		if len(p.Tests.ParallelLines) > 0 {
-			var tests, barred []string
+			var tests, barred, logitOnly []string
 			for _, t := range p.Tests.ParallelLines {
 				if r.Analysis.Errors.Sampling && t.NeedsLikelihood() {
 					barred = append(barred, t.Title())
@@ -145,14 +145,20 @@ func writeMethods(d *doc, r *runner.Result) {
 				switch t {
 				case fit.TestBrant:
 					tests = append(tests, "Brant "+c.cite("brant"))
+					logitOnly = append(logitOnly, "Brant")
 				case fit.TestWolfeGould:
 					tests = append(tests, "Wolfe-Gould "+c.cite("wolfe"))
+					logitOnly = append(logitOnly, "Wolfe-Gould")
 				default:
 					tests = append(tests, t.Title())
 				}
 			}
 			if len(tests) > 0 {
 				s = append(s, fmt.Sprintf("The parallel-lines assumption was tested by %s tests (alpha = %g), overall and for each predictor.", joinAnd(tests), p.Tests.Alpha))
+			}
+			if len(logitOnly) > 0 && !onlyCumulativeLogit(p.Models.Approaches, p.Models.Links) {
+				s = append(s, fmt.Sprintf("The %s %s defined for the cumulative logit model only and %s not computed for the other candidates.",
+					joinAnd(logitOnly), map[bool]string{true: "test is", false: "tests are"}[len(logitOnly) == 1], map[bool]string{true: "was", false: "were"}[len(logitOnly) == 1]))
 			}
 			if len(barred) > 0 {
 				s = append(s, fmt.Sprintf("The %s tests of the parallel-lines assumption the plan asks for were not computed: with sampling weights the fits maximize a pseudo-likelihood, which gives them no chi-square reference.", joinAnd(barred)))
@@ -261,4 +267,21 @@ func dataCell(r *runner.Result) string {
 		return fmt.Sprintf("`%s`, SHA-256 `%s`", r.Plan.Data.File, r.DataHash)
 	}
 	return fmt.Sprintf("%d parts (%s), SHA-256 of their SHA-256s `%s`", len(r.DataParts), partList(r), r.DataHash)
+}
+
+// onlyCumulativeLogit reports whether every candidate of a grid of these
+// approaches and links is a cumulative logit model, the one the Brant and
+// Wolfe-Gould tests are defined for.
+func onlyCumulativeLogit(approaches []fit.Comparison, links []fit.Link) bool {
+	for _, a := range approaches {
+		if a != fit.Cumulative {
+			return false
+		}
+	}
+	for _, l := range links {
+		if l != fit.Logit {
+			return false
+		}
+	}
+	return true
 }
