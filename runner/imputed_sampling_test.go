@@ -117,6 +117,15 @@ func TestImputedSamplingWeightsBarLikelihoodTests(t *testing.T) {
 			}
 		}
 	}
+	// No auxiliary fit is made for the per-predictor likelihood-ratio
+	// tests, which are not computed.
+	for _, or := range []*OutcomeResult{oi, os1} {
+		for _, f := range or.Fits {
+			if f.OnlyParallel != "" {
+				t.Errorf("auxiliary fit %s made for a test not computed under sampling weights", f.ID)
+			}
+		}
+	}
 	// decisions.json says the same: not computed, with the reason.
 	b, err := json.Marshal(BuildDecisions(ri))
 	if err != nil {

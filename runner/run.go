@@ -244,9 +244,14 @@ func gridJobs(an *Analysis, terms []fit.Term, sets []FreeSet, backward bool) ([]
 			}
 		}
 	}
-	// Auxiliary fits for the parallel-lines tests.
-	needPer := slices.Contains(an.Tests.ParallelLines, fit.TestLR)
-	needGlobal := needPer || slices.Contains(an.Tests.ParallelLines, fit.TestWald) || slices.Contains(an.Tests.ParallelLines, fit.TestScore)
+	// Auxiliary fits for the parallel-lines tests the plan asks for and
+	// that can be computed (none for a test barred by sampling weights).
+	asked := func(k fit.TestKind) bool {
+		_, barred := barredTest(an.Errors.Sampling, k, false)
+		return slices.Contains(an.Tests.ParallelLines, k) && !barred
+	}
+	needPer := asked(fit.TestLR)
+	needGlobal := needPer || asked(fit.TestWald) || asked(fit.TestScore)
 	for _, a := range an.Models.Approaches {
 		bw := backward && a == fit.Stage
 		for _, l := range an.Models.Links {
