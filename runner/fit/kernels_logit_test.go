@@ -129,47 +129,58 @@ func checkAsGeneral(t *testing.T, name string, p *problem, c *coefs, s *scratch,
 // rounding), up to 1e15, with weights of 0, and a block of rows not a
 // multiple of adjacentChunk.
 func TestAdjacentKernelsFar(t *testing.T) {
-	for J := 2; J <= 7; J++ {
-		const n = 1100
-		d := speedData(n, 2, J)
-		rng := rand.New(rand.NewPCG(29, uint64(J)))
+	for _, J := range []int{2, 3, 4, 5, 6, 7, 16} {
+		for _, weighted := range []bool{true, false} {
+			adjacentKernelsFar(t, J, weighted)
+		}
+	}
+}
+
+// adjacentKernelsFar is TestAdjacentKernelsFar with J categories, with
+// weights (zeros among them) or without (the rows' shared weight of one).
+func adjacentKernelsFar(t *testing.T, J int, weighted bool) {
+	const n = 1100
+	d := speedData(n, 2, J)
+	rng := rand.New(rand.NewPCG(29, uint64(J)))
+	d.Weights = nil
+	if weighted {
 		d.Weights = make([]float64, n)
 		for i := range d.Weights {
 			d.Weights[i] = []float64{0, 0.5, 1, 2}[rng.IntN(4)]
 		}
-		m := Model{Comparison: Adjacent, Link: Logit, Effects: []Effect{Nonparallel, Nonparallel}}
-		p, theta := atMarginalCutpoints(t, d, m)
-		c := p.coefs(theta)
-		for order := 0; order <= 2; order++ {
-			s := p.newScratch()
-			p.blockColumns(c, 0, n, s)
-			p.blockLinear(c, 0, n, order >= 1, s)
-			cols := J - 1 // equations with a column of their own (one shared: stride 0)
-			if s.etaStride == 0 {
-				cols = 1
-			}
-			r := rand.New(rand.NewPCG(31, uint64(J)))
-			for i := range s.eta[:cols*n] {
-				switch r.IntN(6) {
-				case 0:
-					s.eta[i] = c.tau[i/n] // L = 0
-				case 1:
-					s.eta[i] = c.tau[i/n] - float64(r.IntN(5)-2)
-				case 2:
-					s.eta[i] = c.tau[i/n] - 300*r.NormFloat64()
-				case 3:
-					s.eta[i] = 2000 * r.NormFloat64()
-				case 4:
-					s.eta[i] = math.Ldexp(r.NormFloat64(), r.IntN(50))
-				default:
-					s.eta[i] = 3 * r.NormFloat64()
-				}
-			}
-			a := p.newAcc(0)
-			if !p.blockKernels(c, 0, n, order, false, a, s) {
-				t.Fatalf("J=%d order %d: kernel failed", J, order)
-			}
-			checkAsGeneral(t, fmt.Sprintf("far J=%d order %d", J, order), p, c, s, d, order, a)
+	}
+	m := Model{Comparison: Adjacent, Link: Logit, Effects: []Effect{Nonparallel, Nonparallel}}
+	p, theta := atMarginalCutpoints(t, d, m)
+	c := p.coefs(theta)
+	for order := 0; order <= 2; order++ {
+		s := p.newScratch()
+		p.blockColumns(c, 0, n, s)
+		p.blockLinear(c, 0, n, order >= 1, s)
+		cols := J - 1 // equations with a column of their own (one shared: stride 0)
+		if s.etaStride == 0 {
+			cols = 1
 		}
+		r := rand.New(rand.NewPCG(31, uint64(J)))
+		for i := range s.eta[:cols*n] {
+			switch r.IntN(6) {
+			case 0:
+				s.eta[i] = c.tau[i/n] // L = 0
+			case 1:
+				s.eta[i] = c.tau[i/n] - float64(r.IntN(5)-2)
+			case 2:
+				s.eta[i] = c.tau[i/n] - 300*r.NormFloat64()
+			case 3:
+				s.eta[i] = 2000 * r.NormFloat64()
+			case 4:
+				s.eta[i] = math.Ldexp(r.NormFloat64(), r.IntN(50))
+			default:
+				s.eta[i] = 3 * r.NormFloat64()
+			}
+		}
+		a := p.newAcc(0)
+		if !p.blockKernels(c, 0, n, order, false, a, s) {
+			t.Fatalf("J=%d weighted %t order %d: kernel failed", J, weighted, order)
+		}
+		checkAsGeneral(t, fmt.Sprintf("far J=%d weighted %t order %d", J, weighted, order), p, c, s, d, order, a)
 	}
 }
