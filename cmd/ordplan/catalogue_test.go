@@ -635,7 +635,7 @@ func catalogue(dir string) (items []badInput) {
 		{id: "X5", name: "malformed Parquet file", args: fitArgs(d("bad.parquet"), "--predictors", "a,b"), code: 1,
 			want: []string{`bad.parquet: is not a readable Parquet file (parquet file footer of 1701273954 bytes does not fit in a file of 22 bytes)`}},
 		{id: "X15", name: "a Parquet date column used as a number", args: fitArgs(d("dates.parquet"), "--predictors", "a,day"), code: 1,
-			want: []string{`dates.parquet:2: column "day": value "2022-01-08" is not a number`}},
+			want: []string{"ordplan: dates.parquet:2: column \"day\": value \"2022-01-08\" is not a number; it is a date: a predictor must be a number, so write it as one in a column of its own, such as the days or years since a start date, or declare the column categorical with its values as levels\n"}},
 		{id: "X16", name: "a workbook cell whose formula has no saved value", args: fitArgs(d("formula.xlsx"), "--predictors", "a"), code: 1,
 			want: []string{`formula.xlsx:3: column "a": value "=A3/4" is not a number; the cell holds a formula without its value (the workbook was saved by a program that does not compute formulas): open the workbook in a spreadsheet program and save it, or export the sheet as CSV`}},
 		{id: "X17", name: "a spreadsheet error value in a used column", args: fitArgs(d("formula.xlsx"), "--predictors", "b"), code: 1,

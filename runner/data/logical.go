@@ -1,6 +1,7 @@
 package data
 
 import (
+	"fmt"
 	"math/big"
 	"strconv"
 	"strings"
@@ -135,4 +136,29 @@ func decimalText(n *big.Int, scale int, mark byte) string {
 	}
 	cut := len(digits) - scale
 	return sign + digits[:cut] + string(mark) + digits[cut:]
+}
+
+// timeHint says what a cell that is not a number is when it is a date, a
+// time of day or both, as a Parquet DATE, TIME or TIMESTAMP column (or a
+// CSV) writes them (2022-01-08, 13:45:00, 2022-01-08T13:45:00Z); "" for
+// any other text.
+func timeHint(cell string) string {
+	is := func(layouts ...string) bool {
+		for _, l := range layouts {
+			if _, err := time.Parse(l, cell); err == nil {
+				return true
+			}
+		}
+		return false
+	}
+	const say = ": a predictor must be a number, so write it as one in a column of its own, such as %s, or declare the column categorical with its values as levels"
+	switch {
+	case is("2006-01-02"):
+		return "; it is a date" + fmt.Sprintf(say, "the days or years since a start date")
+	case is("2006-01-02T15:04:05.999999999", "2006-01-02T15:04:05.999999999Z07:00", "2006-01-02 15:04:05.999999999"):
+		return "; it is a date and time" + fmt.Sprintf(say, "the days or years since a start date")
+	case is("15:04:05.999999999", "15:04"):
+		return "; it is a time of day" + fmt.Sprintf(say, "the hours since midnight")
+	}
+	return ""
 }

@@ -167,3 +167,21 @@ func TestDecimalText(t *testing.T) {
 		}
 	}
 }
+
+// A date, a time of day or both in a column used as a number is refused
+// saying what it is and how to write it as a number; other text keeps
+// its own hints.
+func TestDateUsedAsNumber(t *testing.T) {
+	for cell, want := range map[string]string{
+		"2022-01-08":           `value "2022-01-08" is not a number; it is a date: a predictor must be a number, so write it as one in a column of its own, such as the days or years since a start date, or declare the column categorical with its values as levels`,
+		"1969-12-31T23:59:59Z": `value "1969-12-31T23:59:59Z" is not a number; it is a date and time: a predictor must be a number, so write it as one in a column of its own, such as the days or years since a start date, or declare the column categorical with its values as levels`,
+		"13:45:00.5":           `value "13:45:00.5" is not a number; it is a time of day: a predictor must be a number, so write it as one in a column of its own, such as the hours since midnight, or declare the column categorical with its values as levels`,
+		"1.2.3":                `value "1.2.3" is not a number`,
+		"2022-13-08":           `value "2022-13-08" is not a number`,
+	} {
+		_, err := Read(strings.NewReader("y,a\n1,0.5\n2,"+cell+"\n"), "t.csv", Options{Outcome: "y", Predictors: []string{"a"}})
+		if err == nil || err.Error() != `t.csv:3: column "a": `+want {
+			t.Errorf("%s: %v\nwant %s", cell, err, want)
+		}
+	}
+}

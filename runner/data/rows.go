@@ -256,10 +256,14 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 					msg = "value " + quoteCell(cell) + " is not one of the declared levels of this categorical predictor: " + quoteList(opt.PredictorLevels[c.name]) + " (add it to the levels, or list it among the missing-value markers)" + formulaHint(cell)
 				}
 				t.xs[c.pos] = float64(l)
-			} else if t.xs[c.pos], msg = r.opt.Dialect.number(cell); strings.HasSuffix(msg, " is not a number") && !isNumberLike(cell) {
-				if hint := formulaHint(cell); hint != "" {
-					msg += hint
-				} else {
+			} else if t.xs[c.pos], msg = r.opt.Dialect.number(cell); strings.HasSuffix(msg, " is not a number") {
+				switch {
+				case timeHint(cell) != "":
+					msg += timeHint(cell)
+				case isNumberLike(cell): // a malformed number: the message says enough
+				case formulaHint(cell) != "":
+					msg += formulaHint(cell)
+				default:
 					msg += "; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)"
 				}
 			}
