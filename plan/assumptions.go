@@ -500,8 +500,12 @@ func (d *decoder) checkEffect(p *Plan, ts design.TermSpec, cols []string, e *Eff
 			case lv == cat.Reference && e.Named[lv] != 0:
 				d.errAt(childPath(e.Key, lv), "%s is the reference level: its slope is 0", quote(lv))
 			case excludedBy(p, ts.Source, lv) != nil:
-				c := excludedBy(p, ts.Source, lv)
-				d.errAt(childPath(e.Key, lv), "%s is a level the subset leaves out (%s: %s): no row the plan analyses has it, so there is no effect of it to simulate; remove it", quote(lv), c.Key, c.String())
+				// Said only of a sound condition: one with an error (a
+				// misspelt value, a value of the wrong kind) leaves the
+				// level out by that error, which is said at the condition.
+				if c := excludedBy(p, ts.Source, lv); d.clean(c.Key) {
+					d.errAt(childPath(e.Key, lv), "%s is a level the subset leaves out (%s: %s): no row the plan analyses has it, so there is no effect of it to simulate; remove it", quote(lv), c.Key, c.String())
+				}
 			default:
 				e.Levels[j] = e.Named[lv]
 			}

@@ -376,18 +376,12 @@ func (d *decoder) checkSubsetLevels(p *Plan) {
 				}
 			}
 		}
+		// All levels but one left out is said first: removing the levels
+		// one by one would end there.
 		var kept []string
 		for _, l := range c.Levels {
-			sc := excludedBy(p, col, l)
-			switch {
-			case sc == nil:
+			if excludedBy(p, col, l) == nil {
 				kept = append(kept, l)
-			case l == c.Reference:
-				d.errAt(sc.Key, "leaves out the rows of level %s of %s, the reference level (%s): no row used has it; choose another reference", quote(l), col, c.Key)
-				return
-			case c.Unobserved != design.UnobservedDrop:
-				d.errAt(sc.Key, "leaves out the rows of level %s of %s, which %s declares: no row used has it, so its column cannot be estimated; remove the level from %s.levels (rows outside the subset may keep it) or set %s.unobserved: drop", quote(l), col, c.Key, c.Key, c.Key)
-				return
 			}
 		}
 		if len(kept) < 2 {
@@ -397,6 +391,19 @@ func (d *decoder) checkSubsetLevels(p *Plan) {
 				d.errAt(at, "leaves only one level (%s) of %s among the rows used: a categorical predictor needs two; drop %s from the predictors of this subset", quote(kept[0]), col, col)
 			} else {
 				d.errAt(at, "leaves out every level of %s (%s): no row used can have one", col, strings.Join(c.Levels, ", "))
+			}
+			continue
+		}
+		for _, l := range c.Levels {
+			sc := excludedBy(p, col, l)
+			switch {
+			case sc == nil:
+			case l == c.Reference:
+				d.errAt(sc.Key, "leaves out the rows of level %s of %s, the reference level (%s): no row used has it; choose another reference", quote(l), col, c.Key)
+				return
+			case c.Unobserved != design.UnobservedDrop:
+				d.errAt(sc.Key, "leaves out the rows of level %s of %s, which %s declares: no row used has it, so its column cannot be estimated; remove the level from %s.levels (rows outside the subset may keep it) or set %s.unobserved: drop", quote(l), col, c.Key, c.Key, c.Key)
+				return
 			}
 		}
 	}

@@ -105,7 +105,10 @@ func TestSubsetLeavesOutLevels(t *testing.T) {
 		{"{column: site, one_of: [north, south]}", `p.yaml:5:5: subset[1]: leaves out the rows of level "east" of site, the reference level (categorical.site): no row used has it; choose another reference`},
 		{"{column: site, one_of: [east]}", `p.yaml:5:5: subset[1]: leaves only one level ("east") of site among the rows used: a categorical predictor needs two; drop site from the predictors of this subset`},
 		{"{column: site, one_of: [north, east, South]}", `p.yaml:5:5: subset[1]: names "South", which is not a level of site but is written like its level "south" (categorical.site.levels)`},
-		{"{column: treat, none_of: [drug]}", `p.yaml:5:5: subset[1]: leaves out the rows of level "drug" of treat, which categorical.treat declares: no row used has it, so its column cannot be estimated`},
+		// All levels but one is said before the level left out: removing
+		// the level would only lead there.
+		{"{column: treat, none_of: [drug]}", `p.yaml:5:5: subset[1]: leaves only one level ("placebo") of treat among the rows used: a categorical predictor needs two; drop treat from the predictors of this subset`},
+		{`{column: grade, none_of: ["2"]}`, `p.yaml:5:5: subset[1]: leaves out the rows of level "2" of grade, which categorical.grade declares: no row used has it, so its column cannot be estimated`},
 	} {
 		src := strings.Replace(termsPlanSrc, "{column: site, one_of: [north, east]}", c.subset, 1)
 		_, err := Parse([]byte(src), "p.yaml")

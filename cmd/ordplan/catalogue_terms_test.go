@@ -116,7 +116,7 @@ func termItems(dir string) []badInput {
 			want: []string{`--predictors: predictor 1 ("site|levels=north/east/south|as="): |as= names the term: give a name (as=name)`}},
 		{id: "T11", name: "a subset value written otherwise than the data write it", args: []string{"check", "--no-data"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: site, one_of: [north, East]}\npredictors:"), code: 1,
-			want: []string{`T11.yaml:7:5: subset[0]: names "East", which is not a level of site but is written like its level "east" (categorical.site.levels): a misspelt value keeps or drops other rows than meant; write the level as declared`}},
+			want: []string{`T11.yaml:7:5: subset[0]: names "East", which is not a level of site but is written like its level "east" (categorical.site.levels): a misspelt value keeps or drops other rows than meant; write the level as declared` + "\n"}},
 		{id: "T12", name: "a subset value that no row has and that is like none of the column's values", args: []string{"run"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: site, none_of: [west]}\npredictors:"), code: 0,
 			check: func(t *testing.T, dir, out, errs string) {
@@ -127,12 +127,12 @@ func termItems(dir string) []badInput {
 			}},
 		{id: "T13", name: "a level compared by equal_to (a number comparison)", args: []string{"check"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: site, equal_to: north}\npredictors:"), code: 1,
-			want: []string{`T13.yaml:7:30: subset[0].equal_to: want a number, got string "north": equal_to compares numbers; to compare the text, write one_of: [north]`}},
+			want: []string{`T13.yaml:7:30: subset[0].equal_to: want a number, got string "north": equal_to compares numbers; to compare the text, write one_of: [north]` + "\n"}},
 		{id: "T15", name: "new rows to predict with a level not declared (found by check, before any fit)", args: []string{"check"}, setup: writeTermsData,
 			plan: termsEdit("rules:", "inference: {predict: west.csv}\nrules:"), code: 1,
 			want: []string{`T15.yaml: inference.predict: west.csv:5: column "site": value "west" is not one of the declared levels of this categorical predictor: "north", "east", "south"`}},
 		{id: "T14", name: "a subset that leaves out a declared level", args: []string{"check", "--no-data"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: site, none_of: [south]}\npredictors:"), code: 1,
-			want: []string{`T14.yaml:7:5: subset[0]: leaves out the rows of level "south" of site, which categorical.site declares: no row used has it, so its column cannot be estimated; remove the level from categorical.site.levels (rows outside the subset may keep it) or set categorical.site.unobserved: drop`}},
+			want: []string{`T14.yaml:7:5: subset[0]: leaves out the rows of level "south" of site, which categorical.site declares: no row used has it, so its column cannot be estimated; remove the level from categorical.site.levels (rows outside the subset may keep it) or set categorical.site.unobserved: drop` + "\n"}},
 	}
 }
