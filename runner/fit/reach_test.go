@@ -216,10 +216,11 @@ func (f reachFinding) failed() bool {
 // (the cases have more rows than the threshold), with abandoning and
 // without (Options.KeepStarts): both must report the same maximum (the
 // bits, or 1e-9, as in TestKeepStartsSameMaximum). It returns every start
-// abandoned on the approximation alone with where it ends when run.
-func reachFindings(t *testing.T, cases []reachCase) []reachFinding {
+// abandoned on the approximation alone with where it ends when run, and,
+// with strict false (an allowance broken on purpose), counts the fits
+// whose maxima differ (moved) instead of failing on them.
+func reachFindings(t *testing.T, cases []reachCase, strict bool) (out []reachFinding, moved int) {
 	t.Helper()
-	var out []reachFinding
 	var tally startsTally
 	for _, c := range cases {
 		d := c.data()
@@ -233,7 +234,12 @@ func reachFindings(t *testing.T, cases []reachCase) []reachFinding {
 			if err != nil {
 				t.Fatalf("%s: %v", label, err)
 			}
-			tally.compare(t, label, on, off)
+			if strict {
+				tally.compare(t, label, on, off)
+			} else if on.LogLik != off.LogLik {
+				moved++
+				t.Logf("%s: the maximum moved: log-likelihood %.10f with abandoning, %.10f without", label, on.LogLik, off.LogLik)
+			}
 			for i, s := range on.Starts {
 				if s.outOfReach == 0 {
 					continue
@@ -248,7 +254,7 @@ func reachFindings(t *testing.T, cases []reachCase) []reachFinding {
 			}
 		}
 	}
-	return out
+	return out, moved
 }
 
 // TestOutOfReachAdversarial: on data where the approximation around the
@@ -265,7 +271,7 @@ func reachFindings(t *testing.T, cases []reachCase) []reachFinding {
 // whose rows have no bound R, abandon nothing on the approximation.)
 func TestOutOfReachAdversarial(t *testing.T) {
 	long := os.Getenv("ORDPLAN_REACH_LONG") != ""
-	found := reachFindings(t, reachCases(long))
+	found, _ := reachFindings(t, reachCases(long), true)
 	for _, f := range found {
 		if f.failed() {
 			t.Errorf("%s: out of reach by %.6g, but run to its end it is %.6g below the best (reached the best %v)", f.label, f.claimed, f.below, f.reachedBest)
@@ -282,7 +288,9 @@ func TestOutOfReachAdversarial(t *testing.T) {
 		if c.label != "rare 2% just above the screening threshold" && !c.long {
 			continue
 		}
-		for _, f := range reachFindings(t, []reachCase{c}) {
+		found, moved := reachFindings(t, []reachCase{c}, false)
+		bad += moved
+		for _, f := range found {
 			if f.failed() {
 				bad++
 				t.Logf("with the allowance turned against it: %s: claimed %.6g, ends %.6g below", f.label, f.claimed, f.below)
