@@ -30,6 +30,9 @@ func Names(spec Spec) ([][]string, error) {
 				return nil, &Error{Key: ts.Key, Msg: fmt.Sprintf("column %q is not among the columns read", ts.Source)}
 			}
 			if c := spec.Sources[s].Cat; c != nil {
+				if len(c.Levels) == 0 {
+					return nil, &Error{Key: ts.Key, Msg: fmt.Sprintf("categorical column %q declares no levels", ts.Source)}
+				}
 				out[i] = categoricalNames(ts.Name, c.Levels, c.Levels, referenceOf(c), c.Coding)
 			} else {
 				out[i] = numericNames(ts.Name, ts.Transform, max(len(ts.Knots), len(ts.Quantiles)))
