@@ -130,7 +130,11 @@ func pooledPairTest(or *OutcomeResult, kind fit.TestKind, f, full *FitEntry) fit
 	case fit.TestWald:
 		return pooledEqualSlopes(full, freedIn(f, full))
 	case fit.TestScore:
-		return pooledScore(or, f, full.Result.Model)
+		m, err := full.Spec.Model()
+		if err != nil {
+			return missingTest(fit.TestScore, err.Error())
+		}
+		return pooledScore(or, f, m)
 	case fit.TestBrant:
 		return or.pooledBrant(fit.Options{Workers: 1}).test(or.FitData.Predictors)
 	case fit.TestLR:

@@ -137,7 +137,11 @@ func (an *Analysis) DescribeRule(r plan.Rule) string {
 		if r.AppliesTo != nil {
 			s += " Only models with " + strings.Join(wordsOf(r.AppliesTo), " or ") + " effects are tested."
 		}
-		s += " A model whose comparison model has no usable fit is kept, untested, and the log says so."
+		if r.Test.NeedsFullFit() {
+			s += " A model whose comparison model has no usable fit is kept, untested, and the log says so."
+		} else {
+			s += fmt.Sprintf(" The %s test needs only the fit of the model tested, so it is made also where the comparison model has no usable fit.", r.Test.Title())
+		}
 		return s
 	case plan.RuleRejectIfSimplerIsClose:
 		where := "over the rows used"
@@ -275,14 +279,11 @@ func (env *ruleEnv) judgeTest(r plan.Rule, f *FitEntry) (bool, string) {
 	rejected := false
 	for _, t := range targets {
 		full := env.or.Cell(f.Approach, t, f.Link)
-		if !full.OK() {
-			status := "not fitted"
-			if full != nil && full.Result != nil {
-				status = "status " + string(full.Result.Status)
-			} else if full != nil && full.Err != "" {
-				status = full.Err
-			}
-			parts = append(parts, fmt.Sprintf("not tested against %s: it has no usable fit (%s)", full.idOr(fit.ModelID(f.Result.Model.ComparisonName(), t.String(), f.Link)), status))
+		// The score and Brant tests need only the tested model's fit (and
+		// the other model's structure): they are made although the less
+		// constrained model has no usable fit.
+		if full == nil || !full.OK() && r.Test.NeedsFullFit() {
+			parts = append(parts, fmt.Sprintf("not tested against %s: it has no usable fit (%s)", full.idOr(fit.ModelID(f.Result.Model.ComparisonName(), t.String(), f.Link)), full.unusable()))
 			continue
 		}
 		if ok, why := plan.TestDefined(r.Test, f.Approach, f.Link, f.Effects, t, env.an.Errors.Sampling); !ok {
@@ -306,6 +307,9 @@ func (env *ruleEnv) judgeTest(r plan.Rule, f *FitEntry) (bool, string) {
 		env.num("alpha", r.Alpha)
 		cmp, below := belowLimit(tt.P, r.Alpha, "alpha")
 		rejected = rejected || below
+		if !full.OK() {
+			cmp += fmt.Sprintf(" (%s itself has no usable fit, %s; the %s test does not need it)", full.ID, full.unusable(), r.Test.Title())
+		}
 		parts = append(parts, s+cmp)
 	}
 	return !rejected, strings.Join(parts, "; ")
@@ -333,6 +337,18 @@ func pText(p, alpha float64) string {
 		s += " (exactly " + numfmt.Num(p) + ")"
 	}
 	return s
+}
+
+// unusable says why an entry has no usable fit: its status, its error,
+// or that it was not fitted.
+func (f *FitEntry) unusable() string {
+	switch {
+	case f != nil && f.Result != nil:
+		return "status " + string(f.Result.Status)
+	case f != nil && f.Err != "":
+		return f.Err
+	}
+	return "not fitted"
 }
 
 func (f *FitEntry) idOr(id string) string {
@@ -370,7 +386,11 @@ func pairTest(kind fit.TestKind, d *fit.Data, brant *fit.BrantResult, f, full *F
 	case fit.TestWald:
 		return fit.WaldEqualSlopes(full.Result, freedIn(f, full))
 	case fit.TestScore:
-		return fit.ScoreTest(d, f.Result, full.Result.Model)
+		m, err := full.Spec.Model()
+		if err != nil {
+			return missingTest(fit.TestScore, err.Error())
+		}
+		return fit.ScoreTest(d, f.Result, m)
 	case fit.TestBrant:
 		if brant == nil || !brant.OK {
 			reason := "not computed"

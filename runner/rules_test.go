@@ -42,11 +42,15 @@ func TestRuleRejectUnconverged(t *testing.T) {
 	}
 	// The score rule tests parallel against the next less constrained
 	// model, partial; partial's is nonparallel, which has no finite
-	// maximum: partial is kept, untested, and the log says so.
+	// maximum: the score test needs only partial's own fit, so partial is
+	// tested too, and the log says the nonparallel model has no fit.
 	for _, v := range or.Rules[1].Verdicts {
-		if !strings.Contains(v.Reason, "chi2(") && !strings.Contains(v.Reason, "has no usable fit (status no_finite_maximum)") {
+		if !strings.Contains(v.Reason, "chi2(") {
 			t.Errorf("score rule verdict without numbers: %+v", v)
 		}
+	}
+	if v := verdictOf(or.Rules[1], "cumulative/partial/logit"); v == nil || !strings.Contains(v.Reason, "score test against cumulative/nonparallel/logit: chi2(") || !strings.Contains(v.Reason, "itself has no usable fit, status no_finite_maximum") {
+		t.Errorf("partial against nonparallel: %+v", v)
 	}
 	if v := verdictOf(or.Rules[1], "cumulative/parallel/logit"); v == nil || !strings.Contains(v.Reason, "score test against cumulative/partial/logit: chi2(") {
 		t.Errorf("parallel against partial: %+v", v)
@@ -272,5 +276,63 @@ rules:
 	// Every candidate rejected: the fallback is reported.
 	if or.Chosen == nil || !or.Fallback || or.Chosen.ID != "cumulative/parallel/logit" {
 		t.Errorf("chosen %v, fallback %v: %s", or.Chosen, or.Fallback, or.Choice)
+	}
+}
+
+// The score test of a model against a less constrained one is made at the
+// model's own fit, with only the other model's structure: a rule that
+// names it tests the parallel model although the nonparallel one has no
+// finite maximum. On the wine bitterness data (Randall 1989), whose
+// nonparallel cumulative logit model has none, the reference value of
+// testdata/reference/wine.tests.json (cumulative.global.score) is
+// chi2(6) = 2.64359, p = 0.852065; the rule's verdict reads it, keeps the
+// parallel model at alpha 0.05 and rejects it at alpha 0.9. Before, the
+// model was kept untested at any alpha.
+func TestScoreRuleWithoutFullFit(t *testing.T) {
+	ref, err := filepath.Abs(filepath.Join("..", "testdata", "reference", "wine.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, tc := range []struct {
+		alpha float64
+		kept  bool
+	}{{0.05, true}, {0.9, false}} {
+		src := fmt.Sprintf(`version: 1
+data: {file: %q}
+outcomes: [{column: rating}]
+predictors: [temp, contact]
+models: {approaches: [cumulative], effects: [parallel, nonparallel]}
+tests: {parallel_lines: [score]}
+rules:
+  - reject_unconverged: true
+  - reject_if_test_rejects: {test: score, alpha: %g}
+  - choose: {by: aic, otherwise: cumulative/parallel/logit}
+`, ref, tc.alpha)
+		r := runPlan(t, planIn(t, t.TempDir(), src), 0)
+		or := r.Outcomes[0]
+		if np := or.Find("cumulative/nonparallel/logit"); np == nil || np.OK() {
+			t.Fatalf("the nonparallel model should have no finite maximum: %+v", np)
+		}
+		ro := or.Rules[1]
+		v := verdictOf(ro, "cumulative/parallel/logit")
+		if v == nil {
+			t.Fatalf("alpha %g: no verdict on the parallel model", tc.alpha)
+		}
+		const want = 2.64358671337185
+		if got := v.Numbers["chi2_against_cumulative_nonparallel_logit"]; math.Abs(got-want) > 1e-4*want || v.Numbers["df_against_cumulative_nonparallel_logit"] != 6 {
+			t.Errorf("alpha %g: chi2 %v df %v, want %v on 6 (%s)", tc.alpha, got, v.Numbers["df_against_cumulative_nonparallel_logit"], want, v.Reason)
+		}
+		if p := v.Numbers["p_against_cumulative_nonparallel_logit"]; math.Abs(p-0.852064618231402) > 1e-4 {
+			t.Errorf("alpha %g: p %v", tc.alpha, p)
+		}
+		if v.Kept != tc.kept {
+			t.Errorf("alpha %g: kept %v, want %v: %s", tc.alpha, v.Kept, tc.kept, v.Reason)
+		}
+		if !strings.Contains(v.Reason, "cumulative/nonparallel/logit itself has no usable fit, status no_finite_maximum; the score test does not need it") {
+			t.Errorf("alpha %g: the verdict should say the comparison model has no fit: %s", tc.alpha, v.Reason)
+		}
+		if !strings.Contains(ro.Description, "made also where the comparison model has no usable fit") || strings.Contains(ro.Description, "kept, untested") {
+			t.Errorf("description: %s", ro.Description)
+		}
 	}
 }

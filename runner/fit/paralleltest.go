@@ -49,6 +49,15 @@ func (k *TestKind) UnmarshalText(b []byte) (err error) {
 // imputed sets alike.
 func (k TestKind) NeedsLikelihood() bool { return k != TestWald }
 
+// NeedsFullFit reports whether the test of a model against a less
+// constrained one reads the less constrained model's fit: the
+// likelihood-ratio test (both maxima) and the Wald test (made at the less
+// constrained fit). The score test is made at the restricted fit with only
+// the less constrained model's structure, and the Brant test from binary
+// fits of its own, so both exist where the less constrained model has no
+// finite maximum or did not converge, the case they are made for.
+func (k TestKind) NeedsFullFit() bool { return k == TestLR || k == TestWald }
+
 // Title is the test's name in sentences ("likelihood-ratio", "Wald").
 func (k TestKind) Title() string {
 	switch k {
