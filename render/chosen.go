@@ -9,8 +9,10 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
+	"ordplan/plan"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
+	"ordplan/runner/fit"
 )
 
 // writeChosen writes the estimates of the chosen model.
@@ -25,6 +27,9 @@ func writeChosen(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	}
 	d.p("Log-likelihood %s, %d parameters, AIC %s, BIC %s, %s observations. Linear predictor of boundary m: L_m = tau[m] - x'b_m; a positive slope moves the outcome towards higher categories.",
 		numfmt.Fixed(res.LogLik, 4), res.NParams, numfmt.Fixed(res.AIC, 3), numfmt.Fixed(res.BIC, 3), numfmt.Num(res.NObs))
+	if s := negativeRows(res); s != "" {
+		d.p("**Warning:** this model %s: its cumulative probabilities cross inside the data, so for those rows it is not a probability distribution over the categories.%s Its estimates, predicted probabilities and marginal effects come from a model that is not a valid probability model for those rows; read them with care.", s, negativeRule(r, or))
+	}
 	grouped := or.Design != nil && !or.Design.Trivial()
 	var rows [][]string
 	for _, i := range paramOrder(res.ParamNames, or, grouped) {
@@ -43,6 +48,32 @@ func writeChosen(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		head = append([]string{"Term"}, head...)
 	}
 	d.captioned("Estimates of the chosen model, "+or.Chosen.ID).table(head, rows)
+}
+
+// negativeRows says, for a fit that predicts a negative category
+// probability for some rows of the data, for how many ("predicts a
+// negative category probability for 12 of 400 rows used"); "" for any
+// other fit.
+func negativeRows(res *fit.Result) string {
+	if res == nil || res.NegativeRows == 0 {
+		return ""
+	}
+	return fmt.Sprintf("predicts a negative category probability for %d of %d rows used", res.NegativeRows, res.NRows)
+}
+
+// negativeRule says why the rules let such a fit through: the sentence
+// that goes with negativeRows, with its leading space ("" when nothing
+// needs saying).
+func negativeRule(r *runner.Result, or *runner.OutcomeResult) string {
+	for _, rule := range r.Plan.Rules {
+		if rule.Kind == plan.RuleRejectNegativeProbabilities {
+			if or.Fallback {
+				return " The plan's rule reject_negative_probabilities rejects such fits; this one is reported only as the plan's fallback."
+			}
+			return ""
+		}
+	}
+	return " The plan has no reject_negative_probabilities rule, so its rules did not rule such fits out."
 }
 
 // termOfParam names the term a parameter belongs to: the term of its

@@ -78,7 +78,13 @@ func writeSummary(d *doc, r *runner.Result) {
 	d.h(2, "Summary")
 	var items []string
 	for _, or := range r.Outcomes {
-		items = append(items, fmt.Sprintf("**%s** (`%s`): %s.", or.Outcome.Label, or.Outcome.Column, strings.TrimSuffix(or.Choice, ".")))
+		item := fmt.Sprintf("**%s** (`%s`): %s.", or.Outcome.Label, or.Outcome.Column, strings.TrimSuffix(or.Choice, "."))
+		if or.Chosen != nil {
+			if s := negativeRows(or.Chosen.Result); s != "" {
+				item += fmt.Sprintf(" **This model %s** (its cumulative probabilities cross; see the chosen model's section).", s)
+			}
+		}
+		items = append(items, item)
 	}
 	d.list(items)
 	d.p("The sections below give the data, every candidate model, the tests, each decision rule's verdict on each model, and then the chosen model's estimates, predicted probabilities and marginal effects. report.html holds the same text with charts.")
