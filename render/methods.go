@@ -2,6 +2,7 @@ package render
 
 import (
 	"fmt"
+	"path/filepath"
 	"slices"
 	"strings"
 
@@ -244,12 +245,12 @@ func writeReproducibility(d *doc, r *runner.Result) {
 		{"Built with", r.GoVersion},
 		{"Operating system / architecture", r.Platform},
 		{"Command line", cmd},
-		{"Plan", fmt.Sprintf("`%s`, SHA-256 `%s`", p.Path, p.Hash)},
+		{"Plan", fmt.Sprintf("`%s`, SHA-256 `%s`", filepath.Base(p.Path), p.Hash)},
 		{"Data", dataCell(r)},
 		{"Seed", fmt.Sprint(p.Seed)},
 	}
 	d.captioned("What produced this report").table([]string{"Item", "Value"}, rows)
-	d.p("The command line leaves out the options that cannot change the results (output directory, number of workers, queue server, progress lines). The same program, plan, data and seed give the same report byte for byte; run.json lists the SHA-256 hash of every output file.")
+	d.p("The command line leaves out the options that cannot change the results (output directory, number of workers, queue server and its connection, progress lines) and names the plan, and the folder of an earlier run, relative to the plan's folder: run it there. The same program, plan, data and seed give the same report byte for byte; run.json lists the SHA-256 hash of every output file.")
 }
 
 // wordList gives the words of vocabulary values.

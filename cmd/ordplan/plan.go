@@ -1,6 +1,7 @@
 package main
 
 import (
+	"flag"
 	"fmt"
 	"io"
 	"os"
@@ -127,7 +128,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
-	res.Command = commandLine(append([]string{"ordplan", "run"}, resultArgs(rawArgs)...))
+	res.Command = commandLine(append([]string{"ordplan", "run"}, resultArgs(fs, rawArgs, planPath)...))
 	res.Registration = reg
 	dec := runner.BuildDecisions(res)
 	var changes []string
@@ -169,29 +170,48 @@ func isTerminal(f *os.File) bool {
 	return err == nil && st.Mode()&os.ModeCharDevice != 0
 }
 
-// resultArgs drops from the arguments of run those that cannot change
-// what a run computes or reports: where the outputs go, how many fits run
-// at once, where the workers are, progress lines. So the same analysis
-// gives the same report and run.json wherever it is written or run.
-func resultArgs(args []string) []string {
+// resultArgs gives the arguments of run or power as the report records
+// them: without those that cannot change what the command computes or
+// reports (where the outputs go, how many fits run at once, the queue
+// server and how to reach it, progress lines), and with the plan and the
+// folder of --previous written relative to the plan's folder. So the same
+// analysis gives the same report and run.json wherever it is written or
+// run, and from whichever folder the command was typed; the recorded line
+// is run in the plan's folder. fs is the command's flag set, parsed.
+func resultArgs(fs *flag.FlagSet, args []string, planPath string) []string {
 	var out []string
 	for i := 0; i < len(args); i++ {
 		a := args[i]
-		name, _, hasValue := strings.Cut(strings.TrimLeft(a, "-"), "=")
-		if !strings.HasPrefix(a, "-") {
+		if a == "--" || !strings.HasPrefix(a, "-") || a == "-" {
+			if a == planPath {
+				a = filepath.Base(planPath)
+			}
 			out = append(out, a)
 			continue
 		}
-		switch name {
-		case "out", "workers", "queue":
-			if !hasValue {
-				i++ // its value
-			}
-			continue
-		case "quiet":
+		name, value, hasValue := strings.Cut(strings.TrimLeft(a, "-"), "=")
+		takesValue := false
+		if f := fs.Lookup(name); f != nil {
+			b, isBool := f.Value.(interface{ IsBoolFlag() bool })
+			takesValue = !hasValue && !(isBool && b.IsBoolFlag())
+		}
+		if takesValue && i+1 < len(args) {
+			i++
+			value, hasValue = args[i], true
+		}
+		if name == "out" || name == "workers" || name == "quiet" || name == "queue" || name == "job-deadline" || strings.HasPrefix(name, "queue-") {
 			continue
 		}
-		out = append(out, a)
+		if name == "previous" && hasValue {
+			value = relativeTo(planPath, value)
+		}
+		if !hasValue {
+			out = append(out, a)
+		} else if takesValue {
+			out = append(out, "--"+name, value)
+		} else {
+			out = append(out, "--"+name+"="+value)
+		}
 	}
 	return out
 }

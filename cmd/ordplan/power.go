@@ -102,7 +102,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
-	command := commandLine(append([]string{"ordplan", "power"}, resultArgs(rawArgs)...))
+	command := commandLine(append([]string{"ordplan", "power"}, resultArgs(fs, rawArgs, planPath)...))
 	err = writeOutputs(olock, dir, files, func(files map[string][]byte) ([]byte, error) {
 		return runner.SimulationRunJSON(p, command, files)
 	})
