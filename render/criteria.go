@@ -12,8 +12,9 @@ import (
 
 // criteriaChart draws AIC and BIC of every candidate with a finite
 // maximum, in the order of the model table; the chosen model is a larger
-// diamond. It returns nil when no candidate has one.
-func criteriaChart(d *doc, or *runner.OutcomeResult) *chart {
+// diamond. It returns nil when no candidate has one. Under sampling weights
+// the caption says the criteria are descriptive only.
+func criteriaChart(d *doc, or *runner.OutcomeResult, sampling bool) *chart {
 	var names []string
 	var aic, bic []opts.ScatterData
 	var aicV, bicV []float64
@@ -42,6 +43,9 @@ func criteriaChart(d *doc, or *runner.OutcomeResult) *chart {
 	}
 	id := d.chartID()
 	caption := "AIC and BIC of each candidate model (smaller is better); the chosen model is the large diamond. BIC charges more for each parameter than AIC once there are more than seven observations."
+	if sampling {
+		caption += " Under sampling weights both are descriptive only: the log-likelihood is a pseudo-likelihood."
+	}
 	if len(missing) > 0 {
 		caption += fmt.Sprintf(" Not shown, for want of a finite maximum or a fit: %s.", strings.Join(missing, ", "))
 	}

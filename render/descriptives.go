@@ -237,7 +237,25 @@ func writeMissing(d *doc, or *runner.OutcomeResult) {
 // writeImputation states how imputed data were analysed: the method, the
 // number of imputed sets, the fraction of missing information of the key
 // estimates, and what imputation assumes.
-func writeImputation(d *doc, or *runner.OutcomeResult) {
+// pooledTestsText says how the tests are pooled over the imputed sets;
+// under sampling weights only Wald tests are tests, pooled by D1.
+func pooledTestsText(sampling bool) string {
+	if sampling {
+		return "Wald tests (of parallel lines and of the plan's hypotheses) are pooled by D1 (Li, Raghunathan and Rubin 1991), an F test on k and v degrees of freedom, shown in the test tables as k F with its F p-value; with sampling weights the fits maximize a pseudo-likelihood, so the likelihood-ratio, score, Brant and Wolfe-Gould tests and the goodness-of-fit tests are not computed, so none of them is pooled. The plan's test rules use the pooled Wald tests."
+	}
+	return "Likelihood-ratio tests are pooled by the D3 statistic (Meng and Rubin 1992), Wald tests (of parallel lines and of the plan's hypotheses) by D1 (Li, Raghunathan and Rubin 1991); both are F tests on k and v degrees of freedom, shown in the test tables as k F with their F p-values. The Brant test is pooled by D1 too, from the binary logits' stacked slopes and their joint covariance in each set; score and Wolfe-Gould tests, known only by their chi-square statistics, and the goodness-of-fit tests of the chosen model (Lipsitz, Pulkstenis-Robinson; each set's rows grouped by that set's own fit), by D2 (Li, Meng, Raghunathan and Rubin 1991), which is less powerful and only approximately calibrated. The plan's test rules use these pooled tests."
+}
+
+// pooledCriteriaText says what the log-likelihoods and criteria of the
+// pooled fits are.
+func pooledCriteriaText(sampling bool) string {
+	if sampling {
+		return "Log-likelihoods, AIC and BIC are means over the imputed sets of each set's pseudo-log-likelihood and its criteria: descriptive only; a rule on TIC compares the means over the sets of each set's TIC."
+	}
+	return "Log-likelihoods, AIC and BIC are means over the imputed sets: they are not the likelihood of one model, and rules on AIC or BIC compare these means."
+}
+
+func writeImputation(d *doc, or *runner.OutcomeResult, sampling bool) {
 	im := or.Imputed
 	if im == nil {
 		return
@@ -250,8 +268,8 @@ func writeImputation(d *doc, or *runner.OutcomeResult) {
 	case "chained":
 		src = "imputed by this run from `" + im.Files[0] + "`, as described below"
 	}
-	d.p("Every model was fitted on each of the %d imputed data sets (%s; %d rows each) and the fits were pooled by Rubin's rules (Rubin 1987): the estimate is the mean over the sets, its variance the mean within-set variance plus (1 + 1/%d) times the between-set variance. The estimates tables show the pooled estimates with their total standard errors and normal-based intervals; the table below adds the degrees of freedom of Barnard and Rubin (1999) for t-based inference, with the complete-data degrees of freedom taken as the observations less the parameters. Likelihood-ratio tests are pooled by the D3 statistic (Meng and Rubin 1992), Wald tests (of parallel lines and of the plan's hypotheses) by D1 (Li, Raghunathan and Rubin 1991); both are F tests on k and v degrees of freedom, shown in the test tables as k F with their F p-values. The Brant test is pooled by D1 too, from the binary logits' stacked slopes and their joint covariance in each set; score and Wolfe-Gould tests, known only by their chi-square statistics, and the goodness-of-fit tests of the chosen model (Lipsitz, Pulkstenis-Robinson; each set's rows grouped by that set's own fit), by D2 (Li, Meng, Raghunathan and Rubin 1991), which is less powerful and only approximately calibrated. The plan's test rules use these pooled tests. The chosen model's marginal effects and its predictions for new rows are computed on each imputed set with that set's fit and rows, and pooled quantity by quantity by the same rules, with t-based intervals. Log-likelihoods, AIC and BIC are means over the imputed sets: they are not the likelihood of one model, and rules on AIC or BIC compare these means.",
-		im.M, src, im.Rows, im.M)
+	d.p("Every model was fitted on each of the %d imputed data sets (%s; %d rows each) and the fits were pooled by Rubin's rules (Rubin 1987): the estimate is the mean over the sets, its variance the mean within-set variance plus (1 + 1/%d) times the between-set variance. The estimates tables show the pooled estimates with their total standard errors and normal-based intervals; the table below adds the degrees of freedom of Barnard and Rubin (1999) for t-based inference, with the complete-data degrees of freedom taken as the observations less the parameters. %s The chosen model's marginal effects and its predictions for new rows are computed on each imputed set with that set's fit and rows, and pooled quantity by quantity by the same rules, with t-based intervals. %s",
+		im.M, src, im.Rows, im.M, pooledTestsText(sampling), pooledCriteriaText(sampling))
 	f := or.Chosen
 	if f == nil || f.Pooled == nil {
 		for _, c := range or.Fits {

@@ -21,7 +21,15 @@ func writeOverallFit(d *doc, or *runner.OutcomeResult) {
 	}
 	d.h(3, "Overall fit")
 	d.p("Each candidate against the model with thresholds only (no predictor) of the same approach and link: the likelihood-ratio test that every slope is zero, and pseudo-R² measures. McFadden: 1 − LL/LL₀; Cox-Snell: 1 − exp(2(LL₀ − LL)/N); Nagelkerke: Cox-Snell divided by its largest value 1 − exp(2 LL₀/N); McKelvey-Zavoina (cumulative models with parallel effects): the share of the latent variable's variance explained, var(x'b)/(var(x'b) + var(e)). None of them is the share of variance explained in the usual sense; compare them between models of the same data only. Sources are listed in the documentation of the models.")
-	if or.Imputed != nil {
+	pooled := false
+	for _, o := range or.Overall {
+		pooled = pooled || o.LR.OK && o.LR.Pooled != ""
+	}
+	if or.Imputed != nil && !pooled {
+		// No likelihood-ratio statistic is a test (sampling weights), so
+		// none was pooled.
+		d.p("On imputed data both models were fitted on each of the %d imputed sets. LL₀ and each pseudo-R² are the means over the sets of each set's value, the point estimate of Rubin's rules; they have no pooled standard error.", or.Imputed.M)
+	} else if or.Imputed != nil {
 		d.p("On imputed data both models were fitted on each of the %d imputed sets. The likelihood-ratio test is pooled by D3 (Meng and Rubin 1992; the thresholds-only model at the mean of the sets' thresholds, the candidate at its pooled estimates): the column shows k F and the p-value comes from F(k, v), v in decisions.json. LL₀ and each pseudo-R² are the means over the sets of each set's value, the point estimate of Rubin's rules; they have no pooled standard error.", or.Imputed.M)
 	}
 	var rows [][]string
@@ -173,10 +181,10 @@ func writePatternSplit(d *doc, or *runner.OutcomeResult) {
 			d.p("%s, pooled over the imputed sets by %s (approximate; each set's statistic on chi-square(%d)): %s, %s.", ts.name, ts.test.Pooled, ts.test.DF, runner.TestStatistic(ts.test), numfmt.PText(ts.test.P))
 		case ts.test.OK:
 			d.p("%s: chi-square(%d) = %s, %s.", ts.name, ts.test.DF, numfmt.Stat(ts.test.Chi2), numfmt.PText(ts.test.P))
-		case ts.test.Pooled == "" && ts.test.Chi2 == 0 && or.GOFPooling != nil:
-			d.p("%s: not computed, %s.", ts.name, ts.test.Reason)
 		default:
-			d.p("%s statistic %s: not a test, %s.", ts.name, numfmt.Stat(ts.test.Chi2), ts.test.Reason)
+			// A test that is not OK carries no statistic (sampling
+			// weights, too few degrees of freedom, an undefined cell).
+			d.p("%s: not computed, %s.", ts.name, ts.test.Reason)
 		}
 	}
 	if t.Caution != "" {

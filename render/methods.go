@@ -79,8 +79,13 @@ func writeMethods(d *doc, r *runner.Result) {
 	for _, or := range r.Outcomes {
 		var s []string
 		ds := or.Data
-		s = append(s, fmt.Sprintf("The outcome %s (%d ordered categories, from %s to %s) was analysed with ordinal regression models fitted by maximum likelihood (ordplan %s).",
-			or.Outcome.Label, len(ds.Categories), ds.Categories[0], ds.Categories[len(ds.Categories)-1], r.Version))
+		sampling := r.Analysis.Errors.Sampling
+		fitted := "fitted by maximum likelihood"
+		if sampling {
+			fitted = fmt.Sprintf("fitted by maximum pseudo-likelihood with the sampling weights of `%s`", p.Data.Weights)
+		}
+		s = append(s, fmt.Sprintf("The outcome %s (%d ordered categories, from %s to %s) was analysed with ordinal regression models %s (ordplan %s).",
+			or.Outcome.Label, len(ds.Categories), ds.Categories[0], ds.Categories[len(ds.Categories)-1], fitted, r.Version))
 		switch {
 		case or.Imputed != nil && or.Imputed.Source != "chained":
 			// The rows read include every imputed set; each set is complete.
@@ -184,14 +189,23 @@ func writeMethods(d *doc, r *runner.Result) {
 		} else {
 			s = append(s, "No model met every rule.")
 		}
-		s = append(s, fmt.Sprintf("Each model was compared with the model with thresholds only by a likelihood-ratio test and pseudo-R² measures (McFadden %s, Cox-Snell and Nagelkerke %s, McKelvey-Zavoina for cumulative models with parallel effects %s).", c.cite("mcfadden"), c.cite("nagelkerke"), c.cite("mckelvey")))
-		if or.Lipsitz != nil {
-			s = append(s, fmt.Sprintf("The fit of the chosen model was checked with the Lipsitz test %s and by comparing observed and expected counts in groups of predicted score.", c.cite("lipsitz")))
+		if sampling {
+			// No likelihood-based statistic is a test under sampling
+			// weights: only the descriptive comparisons are named.
+			s = append(s, fmt.Sprintf("Each model was compared with the model with thresholds only by pseudo-R² measures (McFadden %s, Cox-Snell and Nagelkerke %s, McKelvey-Zavoina for cumulative models with parallel effects %s); with sampling weights the likelihood-ratio statistic against that model, and the Lipsitz and Pulkstenis-Robinson statistics, are not tests and were not used.", c.cite("mcfadden"), c.cite("nagelkerke"), c.cite("mckelvey")))
+			if or.Lipsitz != nil {
+				s = append(s, "The fit of the chosen model was checked by comparing observed and expected weighted counts in groups of predicted score.")
+			}
+		} else {
+			s = append(s, fmt.Sprintf("Each model was compared with the model with thresholds only by a likelihood-ratio test and pseudo-R² measures (McFadden %s, Cox-Snell and Nagelkerke %s, McKelvey-Zavoina for cumulative models with parallel effects %s).", c.cite("mcfadden"), c.cite("nagelkerke"), c.cite("mckelvey")))
+			if or.Lipsitz != nil {
+				s = append(s, fmt.Sprintf("The fit of the chosen model was checked with the Lipsitz test %s and by comparing observed and expected counts in groups of predicted score.", c.cite("lipsitz")))
+			}
+			if ps := or.PatternSplit; ps != nil && ps.PatternSplit != nil {
+				s = append(s, fmt.Sprintf("Its fit by covariate pattern of the categorical predictors (%s) was checked with the Pulkstenis-Robinson Pearson and deviance tests %s.", strings.Join(ps.Predictors, ", "), c.cite("pulkstenis")))
+			}
 		}
-		if ps := or.PatternSplit; ps != nil && ps.PatternSplit != nil {
-			s = append(s, fmt.Sprintf("Its fit by covariate pattern of the categorical predictors (%s) was checked with the Pulkstenis-Robinson Pearson and deviance tests %s.", strings.Join(ps.Predictors, ", "), c.cite("pulkstenis")))
-		}
-		if or.GOFPooling != nil && or.Lipsitz != nil {
+		if or.GOFPooling != nil && or.Lipsitz != nil && !sampling {
 			s = append(s, fmt.Sprintf("On the imputed data these goodness-of-fit tests were computed on each imputed set with that set's fit of the chosen model, and their chi-square statistics were combined by the D2 rule %s, an approximation that is less powerful than the pooled tests of estimates or likelihoods.", c.cite("d2")))
 		}
 		if p.Models.HasEffects(fit.ConstrainedEffects) || p.Models.HasEffects(fit.StereotypeEffects) {

@@ -16,9 +16,10 @@ import (
 // model says.
 func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	d.h(2, "Outcome: "+or.Outcome.Label)
-	writeData(d, or)
+	sampling := r.Analysis != nil && r.Analysis.Errors.Sampling
+	writeData(d, or, sampling)
 	writeFreeSets(d, or)
-	writeModelTable(d, or)
+	writeModelTable(d, or, sampling)
 	writeOverallFit(d, or)
 	writeTests(d, or)
 	writeDecisionLog(d, or)
@@ -37,7 +38,7 @@ func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	writeNewRows(d, or)
 }
 
-func writeData(d *doc, or *runner.OutcomeResult) {
+func writeData(d *doc, or *runner.OutcomeResult, sampling bool) {
 	ds := or.Data
 	d.h(3, "Data")
 	d.p("Outcome column `%s`, %d categories in this order: %s. %d rows read, %d used; %s. Observations (sum of weights): %s.",
@@ -86,7 +87,7 @@ func writeData(d *doc, or *runner.OutcomeResult) {
 		d.captioned("Predictor terms").table([]string{"Term", "What it is", "Columns"}, rows)
 	}
 	writeDescriptives(d, or)
-	writeImputation(d, or)
+	writeImputation(d, or, sampling)
 }
 
 func writeFreeSets(d *doc, or *runner.OutcomeResult) {
@@ -128,7 +129,7 @@ func writeFreeSets(d *doc, or *runner.OutcomeResult) {
 	}
 }
 
-func writeModelTable(d *doc, or *runner.OutcomeResult) {
+func writeModelTable(d *doc, or *runner.OutcomeResult, sampling bool) {
 	d.h(3, "The models")
 	var rows [][]string
 	for _, f := range or.Fits {
@@ -141,10 +142,13 @@ func writeModelTable(d *doc, or *runner.OutcomeResult) {
 	if s := auxiliaryNote(or); s != "" {
 		d.p("%s", s)
 	}
+	if sampling {
+		d.p("%s", runner.SamplingCriteriaNote)
+	}
 	for _, n := range or.Notes {
 		d.p("%s.", strings.TrimSuffix(n, "."))
 	}
-	if c := criteriaChart(d, or); c != nil {
+	if c := criteriaChart(d, or, sampling); c != nil {
 		d.charts("Chart in report.html: AIC and BIC of every candidate model.", c)
 	}
 }

@@ -1,6 +1,7 @@
 package render
 
 import (
+	"fmt"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
@@ -8,6 +9,7 @@ import (
 	"testing"
 
 	"ordplan/internal/testsurvey"
+	"ordplan/runner"
 )
 
 // TestImputedSamplingReport: on imputed sets with sampling weights the
@@ -58,4 +60,86 @@ rules:
 		}
 	}
 	hasAll(t, "decisions.json", string(files["decisions.json"]), "not valid with sampling weights")
+}
+
+// TestImputedSamplingReportSaysNothingPooledByLikelihood: on imputed sets
+// with sampling weights no likelihood-ratio or goodness-of-fit statistic
+// is a test, so no paragraph, note or methods sentence may say one was
+// pooled by D3 or D2 (the tables beside them say "not a test"), and the
+// candidates table and its chart say AIC and BIC are descriptive only.
+func TestImputedSamplingReportSaysNothingPooledByLikelihood(t *testing.T) {
+	dir := t.TempDir()
+	sv := testsurvey.Report.Imputed(rand.New(rand.NewPCG(31, 4)), testsurvey.ImputedOptions{Rows: 240, Sets: 3, Missing: 0.25, Digits: 5})
+	weighted := func(s string) []byte {
+		lines := strings.Split(strings.TrimRight(s, "\n"), "\n")
+		for i := range lines {
+			if i == 0 {
+				lines[i] += ",w"
+			} else {
+				lines[i] += fmt.Sprintf(",%g", 0.5+float64(i%4)/2)
+			}
+		}
+		return []byte(strings.Join(lines, "\n") + "\n")
+	}
+	os.WriteFile(filepath.Join(dir, "orig.csv"), weighted(sv.Orig), 0o644)
+	os.WriteFile(filepath.Join(dir, "stacked.csv"), weighted(sv.Stacked), 0o644)
+	src := `version: 1
+title: imputed survey, sampling weights
+data: {file: orig.csv, imputed: {file: stacked.csv, column: imp}, weights: w, weight_kind: sampling}
+outcomes: [{column: y}]
+predictors: [x1, x2]
+models: {approaches: [cumulative], effects: [parallel, nonparallel]}
+tests: {parallel_lines: [wald]}
+rules:
+  - choose: {by: tic}
+`
+	files := renderSource(t, dir, src, 2)
+	md := string(files["report.md"])
+	if !strings.Contains(md, "| not a test |") {
+		t.Fatal("the overall-fit table no longer shows the likelihood-ratio statistics as not tests; the test is out of date")
+	}
+	for _, bad := range []string{"pooled by D3", "pooled by the D3", "pooled by D2", "by the D2 rule", "by a likelihood-ratio test", "checked with the Lipsitz test"} {
+		if strings.Contains(md, bad) {
+			t.Errorf("report.md says %q under sampling weights, where no likelihood-ratio or goodness-of-fit statistic is a test", bad)
+		}
+	}
+	hasAll(t, "report.md", md,
+		runner.SamplingCriteriaNote,
+		"Under sampling weights both are descriptive only",
+		"fitted by maximum pseudo-likelihood with the sampling weights of `w`",
+		"are not computed, so none of them is pooled",
+	)
+	hasAll(t, "decisions.json", string(files["decisions.json"]), `"method": "none"`)
+}
+
+// TestSamplingPatternSplitShowsNoStatistic: under sampling weights the
+// Pulkstenis-Robinson statistics are not tests and carry no value; the
+// report says they were not computed instead of printing a statistic of
+// 0.000 beside a table whose observed and expected counts differ.
+func TestSamplingPatternSplitShowsNoStatistic(t *testing.T) {
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(5, 17))
+	var b strings.Builder
+	b.WriteString("y,x,g,w\n")
+	for i := 0; i < 300; i++ {
+		y, x, g := testsurvey.Grouped(rng)
+		fmt.Fprintf(&b, "%d,%.6f,%s,%.3f\n", y, x, testsurvey.Levels[g], 0.5+2*rng.Float64())
+	}
+	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
+	src := `version: 1
+title: grouped survey, sampling weights
+data: {file: d.csv, weights: w, weight_kind: sampling}
+outcomes: [{column: y}]
+categorical: {g: {levels: [` + strings.Join(testsurvey.Levels, ", ") + `]}}
+predictors: [x, g]
+models: {approaches: [cumulative], effects: [parallel]}
+rules:
+  - choose: {by: tic}
+`
+	md := string(renderSource(t, dir, src, 2)["report.md"])
+	hasAll(t, "report.md", md, "#### Tests by covariate pattern (Pulkstenis-Robinson)",
+		"Pearson: not computed, the weights are sampling weights", "Deviance: not computed, the weights are sampling weights")
+	if strings.Contains(md, "statistic 0.000") {
+		t.Error("report.md prints a Pulkstenis-Robinson statistic of 0.000 under sampling weights")
+	}
 }

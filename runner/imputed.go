@@ -406,8 +406,6 @@ func pooledTestBlock(an *Analysis, or *OutcomeResult, perSet [][]*FitEntry, appr
 	return tb
 }
 
-// pooledLR is the D3 test of restricted within full: the likelihood-ratio
-// statistics of each set at the set's own estimates and at the pooled ones.
 // pooledTIC is TIC on imputed data: each set's fit with that set's rows,
 // the value and the penalty averaged over the sets, as AIC and BIC are.
 func pooledTIC(or *OutcomeResult, f *FitEntry, sampling bool) (value, penalty float64, err error) {
@@ -427,6 +425,8 @@ func pooledTIC(or *OutcomeResult, f *FitEntry, sampling bool) (value, penalty fl
 	return value, penalty, nil
 }
 
+// pooledLR is the D3 test of restricted within full: the likelihood-ratio
+// statistics of each set at the set's own estimates and at the pooled ones.
 func pooledLR(or *OutcomeResult, perSet [][]*FitEntry, r, f *FitEntry) fit.Test {
 	if r == nil || f == nil {
 		return missingTest(fit.TestLR, "a model was not fitted")
@@ -582,9 +582,21 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 	if err := runPooledInference(an, or); err != nil {
 		return nil, err
 	}
-	or.Notes = append(or.Notes, fmt.Sprintf("Analysed on %d imputed data sets, pooled by Rubin's rules; log-likelihoods, AIC and BIC are means over the sets, and rules on AIC or BIC compare those means; the plan's hypotheses are pooled Wald tests (D1); marginal effects and predictions are computed on each set and pooled by Rubin's rules", run.M),
-		"Overall fit on imputed data: the likelihood-ratio test against the thresholds-only model is pooled by D3, and LL0 and the pseudo-R2 measures are means over the sets; the goodness-of-fit tests of the chosen model (Lipsitz, Pulkstenis-Robinson) are computed on each set and pooled by D2, which is approximate")
+	or.Notes = append(or.Notes, imputedNotes(run.M, an.Errors.Sampling)...)
 	return or, nil
+}
+
+// imputedNotes are the notes of an outcome analysed on m imputed sets.
+// Under sampling weights no likelihood-based statistic is a test, so
+// nothing is said to be pooled by D3 or D2 and the criteria are
+// descriptive.
+func imputedNotes(m int, sampling bool) []string {
+	if sampling {
+		return []string{fmt.Sprintf("Analysed on %d imputed data sets, pooled by Rubin's rules; log-likelihoods, AIC and BIC are means over the sets (descriptive only: under sampling weights the log-likelihood is a pseudo-likelihood); the plan's hypotheses are pooled Wald tests (D1); marginal effects and predictions are computed on each set and pooled by Rubin's rules", m),
+			"Overall fit on imputed data: under sampling weights the likelihood-ratio statistic against the thresholds-only model and the goodness-of-fit statistics of the chosen model (Lipsitz, Pulkstenis-Robinson) are not tests, so none is pooled; LL0 and the pseudo-R2 measures are means over the sets"}
+	}
+	return []string{fmt.Sprintf("Analysed on %d imputed data sets, pooled by Rubin's rules; log-likelihoods, AIC and BIC are means over the sets, and rules on AIC or BIC compare those means; the plan's hypotheses are pooled Wald tests (D1); marginal effects and predictions are computed on each set and pooled by Rubin's rules", m),
+		"Overall fit on imputed data: the likelihood-ratio test against the thresholds-only model is pooled by D3, and LL0 and the pseudo-R2 measures are means over the sets; the goodness-of-fit tests of the chosen model (Lipsitz, Pulkstenis-Robinson) are computed on each set and pooled by D2, which is approximate"}
 }
 
 // TestStatistic writes a test's statistic for a sentence: "chi2(2) =

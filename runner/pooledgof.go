@@ -12,7 +12,7 @@ import (
 // computed on imputed data: on every set with that set's fit and rows,
 // each set's chi-square statistic, pooled by Method.
 type GOFPooling struct {
-	Method   string    `json:"method"` // "D2"
+	Method   string    `json:"method"` // "D2"; "none" under sampling weights (no test to pool)
 	Note     string    `json:"note"`
 	Lipsitz  []float64 `json:"lipsitz_chi2_by_set,omitempty"`
 	Pearson  []float64 `json:"pearson_chi2_by_set,omitempty"`
@@ -22,6 +22,10 @@ type GOFPooling struct {
 // d2GOFNote is what the report and decisions.json say of the pooled
 // goodness-of-fit tests.
 const d2GOFNote = "each imputed set's rows are grouped by that set's own fitted scores (and covariate patterns) and its statistic is computed with that set's fit of the chosen model; the sets' chi-square statistics are pooled by D2 (Li, Meng, Raghunathan and Rubin 1991), which is approximate: less powerful than the pooled tests of estimates or likelihoods and only roughly calibrated, so its p-value is a guide, not an exact level; the tables are the means over the sets of each set's counts"
+
+// samplingGOFNote is what they say under sampling weights, where no
+// statistic is a test and none is pooled.
+const samplingGOFNote = "each imputed set's rows are grouped by that set's own fitted scores (and covariate patterns) with that set's fit of the chosen model; under sampling weights the statistics are not tests, so none is pooled; the tables are the means over the sets of each set's counts"
 
 // runPooledGoodnessOfFit is the goodness of fit of the chosen pooled
 // model on imputed data: the Lipsitz and Pulkstenis-Robinson tests of
@@ -44,6 +48,9 @@ func runPooledGoodnessOfFit(a *Analysis, or *OutcomeResult) {
 		lzs[k], pss[k] = goodnessOfFit(&Loaded{Data: im.Data[k], Design: or.Design, FitData: im.Sets[k]}, e.Result, a.Fit, a.Errors.Sampling)
 	}
 	rec := &GOFPooling{Method: "D2", Note: d2GOFNote}
+	if a.Errors.Sampling {
+		rec = &GOFPooling{Method: "none", Note: samplingGOFNote}
+	}
 	or.Lipsitz = pooledLipsitz(lzs, rec)
 	or.PatternSplit = pooledPatternSplit(pss, rec)
 	or.GOFPooling = rec

@@ -87,6 +87,10 @@ func (c CovariancePolicy) fitOptions(workers int) fit.Options {
 	return o
 }
 
+// SamplingCriteriaNote is what the report says beside a table or chart of
+// AIC and BIC under sampling weights.
+const SamplingCriteriaNote = "The weights are sampling weights: the log-likelihoods are of a pseudo-likelihood, so AIC and BIC, here and in the chart, are descriptive only and not criteria for choosing a model; TIC (Takeuchi's criterion, whose penalty allows for the weights) is the criterion a rule may use."
+
 // Notes are the run-level remarks the policy brings to the report.
 func (c CovariancePolicy) Notes() []string {
 	out := []string{fmt.Sprintf("Standard errors from the %s.", c.Covariance.Describe())}
