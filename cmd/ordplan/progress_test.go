@@ -89,3 +89,18 @@ func TestPowerProgress(t *testing.T) {
 		}
 	}
 }
+
+// ordplan rehearse reports the fits of its run on standard error, as run
+// does, unless --quiet (the flag word run and power use).
+func TestRehearseProgressAndQuiet(t *testing.T) {
+	dir := t.TempDir()
+	planPath := filepath.Join("..", "..", "plans", "kneepain.yaml")
+	_, errs, code := runCLI("rehearse", planPath, "--n", "120", "--out", filepath.Join(dir, "a"))
+	if code != 0 || !strings.Contains(errs, " fits, ") {
+		t.Fatalf("exit %d, stderr:\n%s", code, errs)
+	}
+	_, errs, code = runCLI("rehearse", planPath, "--n", "120", "--out", filepath.Join(dir, "b"), "--quiet")
+	if code != 0 || strings.Contains(errs, " fits, ") {
+		t.Fatalf("--quiet: exit %d, stderr:\n%s", code, errs)
+	}
+}

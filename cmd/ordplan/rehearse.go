@@ -14,7 +14,7 @@ import (
 	"ordplan/runner/simulate"
 )
 
-const rehearseUsage = "usage: ordplan rehearse PLAN.yaml [--n N] [--out DIR] [--workers N]"
+const rehearseUsage = "usage: ordplan rehearse PLAN.yaml [--n N] [--out DIR] [--workers N] [--quiet]"
 
 // simulatedFile is the name of the simulated data among a rehearsal's outputs.
 const simulatedFile = "simulated-data.csv"
@@ -34,6 +34,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	n := fs.Int("n", 0, "rows to simulate (default: assumptions.n)")
 	out := fs.String("out", "", "output directory (default: out/<plan name>-rehearsal)")
 	workers := fs.Int("workers", 0, "fits run at once (default: all cores); results do not depend on it")
+	quiet := fs.Bool("quiet", false, "no progress lines")
 	planPath, stop, code := planArg(fs, args, rehearseUsage, stderr)
 	if stop {
 		return code
@@ -80,7 +81,11 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	if err := os.WriteFile(q.Data.Path, buf.Bytes(), 0o644); err != nil {
 		return fail(stderr, err)
 	}
-	res, err := runner.Run(&q, runner.Options{Workers: *workers})
+	opt := runner.Options{Workers: *workers}
+	if !*quiet {
+		opt.Progress = stderrProgress(stderr)
+	}
+	res, err := runner.Run(&q, opt)
 	if err != nil {
 		return fail(stderr, fmt.Errorf("rehearsal on simulated data: %w", err))
 	}
