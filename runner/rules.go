@@ -120,6 +120,51 @@ func DescribeRules(p *plan.Plan) []string {
 	return out
 }
 
+// clusterColumn is the column of cluster ids the outcomes are read with
+// ("" without one).
+func (an *Analysis) clusterColumn() string {
+	for _, o := range an.Outcomes {
+		if o.Options.Cluster != "" {
+			return o.Options.Cluster
+		}
+	}
+	return ""
+}
+
+// clusterCaveat is what a rule reading a likelihood-based test or AIC or
+// BIC must say under clustered errors: it takes every observation as
+// independent, so the clusters the standard errors allow for do not reach
+// it; "" for any other rule or covariance.
+func (an *Analysis) clusterCaveat(r plan.Rule) string {
+	if an.Errors.Covariance != fit.Clustered {
+		return ""
+	}
+	switch {
+	case r.Kind == plan.RuleRejectIfTestRejects && r.Test.NeedsLikelihood():
+		return fmt.Sprintf("The %s test takes every observation as independent: it ignores the clusters of %s that the clustered standard errors allow for, and rejects too often when observations of a cluster are alike (the Wald test uses the cluster-robust covariance)", r.Test.Title(), an.clusterColumn())
+	case (r.Kind == plan.RuleChoose || r.Kind == plan.RulePreferSimpler) && (r.By == "aic" || r.By == "bic"):
+		return fmt.Sprintf("%s takes every observation as independent: the clusters of %s that the clustered standard errors allow for do not reach it", criterionName(r.By), an.clusterColumn())
+	}
+	return ""
+}
+
+// ClusterWarnings are the warnings check and run print for a plan with
+// clustered errors whose rules or stepwise selection read statistics that
+// ignore the clusters; none otherwise.
+func ClusterWarnings(p *plan.Plan) []string {
+	an := ResolvePlan(p)
+	var out []string
+	if sel := p.Models.Partial.Select; sel != nil && an.Errors.Covariance == fit.Clustered && sel.Test.NeedsLikelihood() {
+		out = append(out, fmt.Sprintf("models.partial.select: the stepwise selection by %s tests takes every observation as independent: it ignores the clusters of %s that the clustered standard errors allow for (test: wald uses them)", sel.Test.Title(), an.clusterColumn()))
+	}
+	for i, r := range an.Rules {
+		if c := an.clusterCaveat(r); c != "" {
+			out = append(out, fmt.Sprintf("rules[%d].%s (line %d): %s", i, r.Kind, r.Line, c))
+		}
+	}
+	return out
+}
+
 // DescribeRule says what a rule does, in plain words.
 func (an *Analysis) DescribeRule(r plan.Rule) string {
 	switch r.Kind {
@@ -141,6 +186,9 @@ func (an *Analysis) DescribeRule(r plan.Rule) string {
 			s += " A model whose comparison model has no usable fit is kept, untested, and the log says so."
 		} else {
 			s += fmt.Sprintf(" The %s test needs only the fit of the model tested, so it is made also where the comparison model has no usable fit.", r.Test.Title())
+		}
+		if c := an.clusterCaveat(r); c != "" {
+			s += " " + c + "."
 		}
 		return s
 	case plan.RuleRejectIfSimplerIsClose:
@@ -187,6 +235,9 @@ func (an *Analysis) DescribeRule(r plan.Rule) string {
 			s = fmt.Sprintf("Choose the model with the smallest %s; models within %g of it count as tied and the one with fewer parameters wins.", criterionName(r.By), r.Margin)
 		} else {
 			s = fmt.Sprintf("Among models within %g %s of the smallest, choose the one with the fewest parameters (then the smaller %s).", r.Margin, criterionName(r.By), criterionName(r.By))
+		}
+		if c := an.clusterCaveat(r); c != "" {
+			s += " " + c + "."
 		}
 		if r.Otherwise == plan.OtherwiseStop {
 			return s + " If every candidate has been rejected, choose nothing and stop with an error."

@@ -139,3 +139,40 @@ func TestCheckListsRules(t *testing.T) {
 		}
 	}
 }
+
+// With clustered errors, check warns of each rule (and stepwise selection)
+// reading a statistic that takes every observation as independent, as the
+// report's assumptions say; a Wald rule and a TIC choice get no warning,
+// and without clustered errors nothing is said.
+func TestCheckWarnsOfRulesIgnoringClusters(t *testing.T) {
+	dir := t.TempDir()
+	os.WriteFile(filepath.Join(dir, "d.csv"), []byte("y,a,b,c\n1,0.5,1,k\n2,0.1,0,k\n3,0.7,1,m\n1,0.2,0,m\n2,0.9,1,n\n3,0.3,0,n\n"), 0o644)
+	plan := func(cov, rules string) string {
+		p := filepath.Join(dir, "p.yaml")
+		os.WriteFile(p, []byte("version: 1\ndata: {file: d.csv, cluster: c}\noutcomes: [{column: y}]\npredictors: [a, b]\nmodels: {effects: [parallel, partial, nonparallel], partial: {select: {method: stepwise, test: lr}}}\ncovariance: "+cov+"\nrules:\n"+rules), 0o644)
+		return p
+	}
+	const rules = "  - reject_if_test_rejects: {test: lr}\n  - reject_if_test_rejects: {test: wald}\n  - prefer_simpler: {by: bic}\n"
+	stdout, stderr, code := runCLI("check", plan("clustered", rules))
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	for _, w := range []string{
+		"warning: " + filepath.Join(dir, "p.yaml") + ": models.partial.select: the stepwise selection by likelihood-ratio tests takes every observation as independent",
+		"warning: " + filepath.Join(dir, "p.yaml") + ": rules[0].reject_if_test_rejects (line 8): The likelihood-ratio test takes every observation as independent: it ignores the clusters of c",
+		"rules[2].prefer_simpler (line 10): BIC takes every observation as independent",
+	} {
+		if !strings.Contains(stderr, w) {
+			t.Errorf("check's stderr lacks %q:\n%s", w, stderr)
+		}
+	}
+	if strings.Contains(stderr, "rules[1]") {
+		t.Errorf("check warns of the Wald rule, which uses the cluster-robust covariance:\n%s", stderr)
+	}
+	if !strings.Contains(stdout, "The likelihood-ratio test takes every observation as independent") {
+		t.Errorf("the rule's description lacks the caveat:\n%s", stdout)
+	}
+	if _, stderr, _ := runCLI("check", plan("observed", rules)); strings.Contains(stderr, "warning") {
+		t.Errorf("check warns without clustered errors:\n%s", stderr)
+	}
+}
