@@ -677,3 +677,65 @@ func TestFitPartsLipsitzFailureKeepsFit(t *testing.T) {
 		t.Errorf("the fit over parts prints otherwise than the local one:\n%s\n---\n%s", local, r[0])
 	}
 }
+
+// Parts are judged as one data set, as when they are read as one: a part
+// that holds one outcome category and a part whose every row is dropped
+// (a missing value in each) are accepted by ordplan fit --parts --queue as
+// they are by a fit reading the parts here, and the fit over the workers,
+// its thresholds-only comparison and its Lipsitz test print what the local
+// fit prints; data whose kept rows hold one category in all are refused in
+// the local reading's words (General Social Survey extract, Long 1997).
+func TestFitPartsJudgedAsOneDataSet(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts worker processes")
+	}
+	src, err := os.ReadFile(filepath.Join(refDir, "gsswarm.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(src)), "\n")
+	var one, empty, rest strings.Builder
+	for _, b := range []*strings.Builder{&one, &empty, &rest} {
+		b.WriteString(lines[0] + "\n")
+	}
+	for i, l := range lines[1:] {
+		switch {
+		case strings.HasPrefix(l, "1,") && i%2 == 0:
+			one.WriteString(l + "\n")
+		case i%7 == 0:
+			f := strings.Split(l, ",")
+			f[4] = "NA" // age
+			empty.WriteString(strings.Join(f, ",") + "\n")
+		default:
+			rest.WriteString(l + "\n")
+		}
+	}
+	dir := t.TempDir()
+	var parts []string
+	for k, b := range []*strings.Builder{&one, &empty, &rest} {
+		p := filepath.Join(dir, "part"+strconv.Itoa(k)+".csv")
+		os.WriteFile(p, []byte(b.String()), 0o644)
+		parts = append(parts, p)
+	}
+	args := []string{"fit", "--outcome", "warm", "--categories", "1,2,3,4", "--predictors", "yr89,male,white,age,ed,prst"}
+	local, errs, code := runCLI(append(args, "--parts", strings.Join(parts, ","))...)
+	if code != 0 {
+		t.Fatal(errs)
+	}
+	url := localserver.ForTest(t)
+	startWorkerProc(t, url, "w1")
+	r := waitRun(t, runAsync(append(args, "--queue", url, "--parts", strings.Join(parts, ","))...), 90*time.Second)
+	if sameLines(local) != sameLines(r[0]) || !strings.Contains(r[0], "\nLipsitz test (10 groups of predicted score): chi2(9) = ") {
+		t.Errorf("the fit over parts prints otherwise than the local one:\n%s\n---\n%s\n%s", local, r[0], r[1])
+	}
+	few := []string{parts[0], parts[1]}
+	_, want, _ := runCLI(append(args, "--parts", strings.Join(few, ","))...)
+	select {
+	case r = <-runAsync(append(args, "--queue", url, "--parts", strings.Join(few, ","))...):
+	case <-time.After(90 * time.Second):
+		t.Fatal("the queued fit did not finish within 90s")
+	}
+	if r[2] != "1" || !strings.Contains(want, `only one category ("1") among the`) || !strings.Contains(r[1], strings.TrimPrefix(strings.TrimSpace(want), "ordplan: ")) {
+		t.Errorf("one category over all parts: here %q, over the queue exit %s %q", want, r[2], r[1])
+	}
+}

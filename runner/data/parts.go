@@ -270,3 +270,47 @@ func (p *partRecords) local(err error) error {
 	}
 	return &e
 }
+
+// PartsSummary gathers what the parts of data read part by part
+// (Options.Part) keep, so that the checks a reading of the whole data
+// makes of its kept rows (some row kept; at least two outcome categories)
+// are made once, over all parts, in the same words: a part may keep no
+// row, or rows of one category, as a stretch of one file may.
+type PartsSummary struct {
+	d Dataset
+}
+
+// Add counts one part's rows, kept and dropped.
+func (s *PartsSummary) Add(ds *Dataset) {
+	s.d.Outcome = ds.Outcome
+	s.d.RowsRead += ds.RowsRead
+	s.d.N += ds.N
+	s.d.RowsOutside += ds.RowsOutside
+	s.d.RowsDropped += ds.RowsDropped
+	for _, dc := range ds.Dropped {
+		i := slices.IndexFunc(s.d.Dropped, func(c DropCount) bool { return c.Column == dc.Column })
+		if i < 0 {
+			s.d.Dropped = append(s.d.Dropped, dc)
+			continue
+		}
+		s.d.Dropped[i].Rows += dc.Rows
+	}
+}
+
+// Check judges the whole data as reading it as one data set does: name
+// names it in messages (PartsName), opt are the options the parts were
+// read with, categories and counts the whole data's outcome categories
+// and their (weighted) counts.
+func (s *PartsSummary) Check(name string, opt Options, categories []string, counts []float64) error {
+	r := &reader{file: name, opt: opt}
+	r.opt.Part = false
+	if err := r.noneKept(&s.d, true); err != nil {
+		return err
+	}
+	if err := r.noneKept(&s.d, false); err != nil {
+		return err
+	}
+	d := s.d
+	d.Categories, d.Counts = categories, counts
+	return r.twoCategories(&d)
+}

@@ -395,14 +395,8 @@ func (r *reader) countDrops(t *rowTally, d *Dataset) error {
 	if err := r.unknownListValues(t, d); err != nil {
 		return err
 	}
-	if d.N == 0 && d.RowsOutside == d.RowsRead {
-		first := ""
-		for i, n := range t.subsetDrops {
-			if n > 0 && first == "" {
-				first = opt.Keep[i].Column
-			}
-		}
-		return r.fail(0, first, "the subset keeps no rows: all %d data rows fail its conditions (%s)", d.RowsRead, dropList(d.Dropped))
+	if err := r.noneKept(d, true); err != nil {
+		return err
 	}
 	for _, col := range opt.Predictors {
 		if seen := t.levelSeen[col]; seen != nil {
@@ -413,17 +407,40 @@ func (r *reader) countDrops(t *rowTally, d *Dataset) error {
 			}
 		}
 	}
-	if d.N == 0 {
-		why := "missing values"
-		if d.RowsOutside > 0 {
-			why = "missing values or the subset"
-		}
-		if t.zeroWeight > 0 {
-			why = "missing values or zero weight"
-		}
-		return r.fail(0, "", "all %d data rows were dropped for %s (%s)", d.RowsRead, why, dropList(d.Dropped))
+	return r.noneKept(d, false)
+}
+
+// noneKept refuses data that keep no row: outside the subset (subset set:
+// every row fails its conditions), else for any reason. A part of data
+// held as parts (Options.Part) is not refused: the whole data is judged
+// once (PartsSummary), as when the parts are read as one data set.
+func (r *reader) noneKept(d *Dataset, subset bool) error {
+	opt := &r.opt
+	if d.N > 0 || opt.Part {
+		return nil
 	}
-	return nil
+	if subset {
+		if d.RowsOutside != d.RowsRead {
+			return nil
+		}
+		first := ""
+		for _, c := range opt.Keep {
+			if first == "" && slices.ContainsFunc(d.Dropped, func(dc DropCount) bool {
+				return dc.Subset && dc.Rows > 0 && dc.Column == "outside the subset "+c.String()
+			}) {
+				first = c.Column
+			}
+		}
+		return r.fail(0, first, "the subset keeps no rows: all %d data rows fail its conditions (%s)", d.RowsRead, dropList(d.Dropped))
+	}
+	why := "missing values"
+	if d.RowsOutside > 0 {
+		why = "missing values or the subset"
+	}
+	if opt.Weights != "" && slices.ContainsFunc(d.Dropped, func(dc DropCount) bool { return dc.Column == opt.Weights+" = 0" }) {
+		why = "missing values or zero weight"
+	}
+	return r.fail(0, "", "all %d data rows were dropped for %s (%s)", d.RowsRead, why, dropList(d.Dropped))
 }
 
 // byCategory fills the missingness by outcome category: the kept rows of
@@ -570,14 +587,27 @@ func (r *reader) tally(d *Dataset) error {
 			d.Counts[y]++
 		}
 	}
+	for j, c := range d.Counts {
+		if c == 0 {
+			d.Unobserved = append(d.Unobserved, d.Categories[j])
+		}
+	}
+	if r.opt.Part {
+		// Judged once on the whole data (PartsSummary).
+		return nil
+	}
+	return r.twoCategories(d)
+}
+
+// twoCategories refuses data whose kept rows hold fewer than two outcome
+// categories.
+func (r *reader) twoCategories(d *Dataset) error {
 	seen := 0
 	last := ""
 	for j, c := range d.Counts {
 		if c > 0 {
 			seen++
 			last = d.Categories[j]
-		} else {
-			d.Unobserved = append(d.Unobserved, d.Categories[j])
 		}
 	}
 	if seen < 2 {

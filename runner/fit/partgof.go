@@ -114,6 +114,10 @@ func (m *Moments) Merge(o *Moments) {
 // the two passes of the rank check.
 func momentsOf(d *Data) *Moments {
 	K := len(d.Predictors)
+	if d.N() == 0 {
+		// A part that keeps no row: the identity of Merge.
+		return &Moments{Mean: make([]float64, K), Cross: make([]float64, K*K)}
+	}
 	cs := d.columnSums(0, nil, 0, nil)
 	m := &Moments{Weight: cs.tot, Mean: make([]float64, K)}
 	if cs.tot == 0 {

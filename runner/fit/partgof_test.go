@@ -255,3 +255,31 @@ func TestScoreQueryAndAnswerChecks(t *testing.T) {
 		}
 	}
 }
+
+// A part that keeps no row (a subset or missing values can empty one)
+// changes nothing: the partitioned fit, its diagnostics and the Lipsitz
+// test over the parts with an empty part among them equal those without
+// it (General Social Survey extract, Long 1997), and no question to the
+// empty part fails.
+func TestEmptyPartChangesNothing(t *testing.T) {
+	d := gssData(t)
+	m := metaModels[0]
+	r := fitOK(t, d, m)
+	parts, w := splitParts(d, 3)
+	empty := &Data{J: d.J, Predictors: d.Predictors, Categories: d.Categories, Y: []int{}, X: []float64{}}
+	with := []*Data{parts[0], empty, parts[1], parts[2]}
+	if n, mp, err := PartitionDiagnostics(empty, m, r.Estimates); err != nil || n != 0 || !math.IsInf(mp, 1) {
+		t.Errorf("diagnostics of an empty part: %d rows, smallest probability %v, %v; want 0, +Inf", n, mp, err)
+	}
+	base, err := LipsitzOverParts(r, w, &localParts{parts: parts}, 0, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	got, err := LipsitzOverParts(r, w, &localParts{parts: with}, 0, Options{})
+	if err != nil {
+		t.Fatalf("with an empty part: %v", err)
+	}
+	if !got.Test.OK || got.Test.Chi2 != base.Test.Chi2 || got.Test.DF != base.Test.DF {
+		t.Errorf("with an empty part: %+v, without: %+v", got.Test, base.Test)
+	}
+}

@@ -159,9 +159,11 @@ func TestLongJobKeptByInProgressAcks(t *testing.T) {
 	}
 }
 
-// A partition holding one outcome category is refused with the reader's
-// message, naming the partition.
-func TestPartitionWithOneCategoryRefused(t *testing.T) {
+// A partition holding one outcome category is fitted with the others, as
+// the rows are when read as one data set (the whole data has both
+// categories): the same log-likelihood and estimates as the local fit of
+// all rows (invented rows).
+func TestPartitionWithOneCategoryFitted(t *testing.T) {
 	ctx := testContext(t, 30*time.Second)
 	url := localserver.ForTest(t)
 	c := connect(t, ctx, url)
@@ -170,9 +172,19 @@ func TestPartitionWithOneCategoryRefused(t *testing.T) {
 	parts := []PartitionRef{writePart(t, dir, "a.csv", "y,x\n1,0\n2,1\n1,1\n"), writePart(t, dir, "b.csv", "y,x\n2,0\n2,1\n")}
 	whole := fit.Whole{J: 2, Predictors: []string{"x"}, Categories: []string{"1", "2"}, Counts: []float64{2, 3}, Rows: 5}
 	m, _ := runner.Spec{Approach: fit.Cumulative, Link: fit.Logit, Predictors: []string{"x"}}.Model()
-	_, err := FitPartitioned(ctx, c, parts, whole, m, PartitionOptions{Data: data.Options{Outcome: "y", Predictors: []string{"x"}}})
-	if err == nil || !strings.Contains(err.Error(), `partition b.csv: column "y": only one category`) {
-		t.Fatalf("got %v", err)
+	got, err := FitPartitioned(ctx, c, parts, whole, m, PartitionOptions{Data: data.Options{Outcome: "y", Predictors: []string{"x"}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	all := &fit.Data{J: 2, Predictors: []string{"x"}, Categories: []string{"1", "2"}, Y: []int{0, 1, 0, 1, 1}, X: []float64{0, 1, 1, 0, 1}}
+	local, err := fit.Fit(all, m, fit.Options{})
+	if err != nil || !local.OK() || !got.OK() || math.Abs(got.LogLik-local.LogLik) > 1e-8 {
+		t.Fatalf("over the parts %s %v, here %v (%v)", got.Status, got.LogLik, local, err)
+	}
+	for i := range local.Estimates {
+		if math.Abs(got.Estimates[i]-local.Estimates[i]) > 1e-7 {
+			t.Errorf("%s: %v over the parts, %v here", local.ParamNames[i], got.Estimates[i], local.Estimates[i])
+		}
 	}
 }
 

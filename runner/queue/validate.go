@@ -86,7 +86,10 @@ func checkReply(t *Task, r *Reply) error {
 			return fmt.Errorf("the partition sums are malformed: %v", err)
 		}
 	case KindDiag:
-		if r.Result != nil || r.Sums != nil || r.Negative < 0 || math.IsNaN(r.MinProb) || r.MinProb > 1 {
+		// A part that keeps no row (a subset or missing values may
+		// empty one) has no smallest probability: +Inf, the identity of
+		// the minimum taken over the parts.
+		if r.Result != nil || r.Sums != nil || r.Negative < 0 || math.IsNaN(r.MinProb) || r.MinProb > 1 && !math.IsInf(r.MinProb, 1) {
 			return fmt.Errorf("malformed diagnostics (%d negative rows, smallest probability %g)", r.Negative, r.MinProb)
 		}
 	case KindScores:

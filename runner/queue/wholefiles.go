@@ -37,7 +37,8 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 		whole.Counts = make([]float64, max(len(dopt.Categories), len(dopt.Codes)))
 	}
 	var refs []PartitionRef
-	var seen data.ListValues // the values of one_of/none_of columns over all parts
+	var seen data.ListValues   // the values of one_of/none_of columns over all parts
+	var kept data.PartsSummary // the rows each part keeps, judged on the whole data
 	part := dopt
 	part.Part = true
 	for _, p := range paths {
@@ -46,6 +47,7 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 			return whole, nil, 0, err
 		}
 		read += ds.RowsRead
+		kept.Add(ds)
 		if seen == nil {
 			seen = ds.ListSeen
 		} else {
@@ -94,5 +96,8 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 		}
 	}
 	whole.J = len(whole.Categories)
+	if err := kept.Check(data.PartsName(paths), dopt, whole.Categories, whole.Counts); err != nil {
+		return whole, nil, 0, err
+	}
 	return whole, refs, read, nil
 }
