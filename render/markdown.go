@@ -7,6 +7,7 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
+	"ordplan/plan"
 	"ordplan/runner"
 	"ordplan/runner/fit"
 )
@@ -197,8 +198,41 @@ func writeLimits(d *doc, r *runner.Result) {
 		rowsSentence(r),
 		"The chosen model's standard errors, p-values and intervals (of its estimates, predicted probabilities and marginal effects) treat it as fixed in advance, not as the result of the selection made by the rules, and of any stepwise choice of partial effects, on the same data: they leave out the uncertainty of that selection, so intervals tend to be too narrow and p-values too small.",
 		"Standard errors of predicted probabilities and marginal effects use the delta method: they are first-order approximations.",
+		multiplicitySentence(r),
 	}
 	d.list(slices.DeleteFunc(items, func(s string) bool { return s == "" }))
+}
+
+// multiplicitySentence says, when the plan's hypotheses make more than one
+// test in the chosen models (of one outcome or of several) and the plan
+// adjusts none for multiplicity, that their p-values are each read alone;
+// "" otherwise. The tests counted are those an adjustment would take: each
+// hypothesis tested in its outcome's chosen model.
+func multiplicitySentence(r *runner.Result) string {
+	if m := r.Plan.Inference.Multiplicity; m != "" && m != plan.MultiplicityNone {
+		return ""
+	}
+	tests, outcomes := 0, 0
+	for _, or := range r.Outcomes {
+		n := 0
+		for _, h := range or.Hypotheses {
+			if or.Chosen != nil && h.Model == or.Chosen.ID && h.Test.OK {
+				n++
+			}
+		}
+		tests += n
+		if n > 0 {
+			outcomes++
+		}
+	}
+	if tests < 2 {
+		return ""
+	}
+	of := "the chosen model"
+	if outcomes > 1 {
+		of = fmt.Sprintf("the chosen models of %d outcomes", outcomes)
+	}
+	return fmt.Sprintf("The plan's hypotheses make %d tests in %s, whose p-values are not adjusted for multiplicity (inference.multiplicity: none): each test holds its level on its own, and the chance that at least one rejects although none of the hypotheses is false is larger than that level (holm or benjamini_hochberg would adjust them). The other tests of this report (parallel lines, overall fit, goodness of fit) are not adjusted either.", tests, of)
 }
 
 // startsSentence says how the searches from several starts were run:
