@@ -6,6 +6,7 @@ import (
 	"slices"
 	"strings"
 
+	"ordplan/plan/lock"
 	"ordplan/runner"
 	"ordplan/runner/fit"
 )
@@ -136,8 +137,8 @@ func writeMethods(d *doc, r *runner.Result) {
 				effects = append(effects, "the one-dimensional stereotype model "+c.cite("anderson"))
 			}
 		}
-		s = append(s, fmt.Sprintf("The candidate models, fixed in an analysis plan before fitting (plan SHA-256 %s), crossed %s with %s, using the %s link%s.",
-			short(p.Hash), joinAnd(comps), joinAnd(effects), joinAnd(wordList(p.Models.Links)), plural(len(p.Models.Links))))
+		s = append(s, fmt.Sprintf("The candidate models, fixed in an analysis plan before fitting (plan SHA-256 %s%s), crossed %s with %s, using the %s link%s.",
+			short(p.Hash), registeredAs(r), joinAnd(comps), joinAnd(effects), joinAnd(wordList(p.Models.Links)), plural(len(p.Models.Links))))
 		if sel := p.Models.Partial.Select; sel != nil {
 			s = append(s, fmt.Sprintf("The predictors allowed non-parallel effects were selected by backward stepwise imposition of parallel constraints with %s tests at alpha = %g %s.", sel.Test.Title(), sel.Alpha, c.cite("williams")))
 		}
@@ -217,6 +218,32 @@ func writeMethods(d *doc, r *runner.Result) {
 	}
 	d.p("References:")
 	d.list(c.list())
+}
+
+// registeredAs is what the methods paragraph says of the plan's
+// registration, after the plan's hash: the lock it matches or departs
+// from, with the registration id, or that it was not frozen; "" when the
+// plan was not compared with a lock.
+func registeredAs(r *runner.Result) string {
+	st := r.Registration
+	if st == nil {
+		return ""
+	}
+	if st.State == lock.StateNone || st.Lock == nil {
+		return "; the plan was not frozen in a lock file, so the report cannot show when it was fixed"
+	}
+	s := fmt.Sprintf("; frozen on %s", st.Lock.FrozenAt)
+	if st.Lock.Registration != "" {
+		s += ", registration " + st.Lock.Registration
+	}
+	s += fmt.Sprintf(", canonical SHA-256 %s", short(st.Lock.SHA256))
+	switch st.State {
+	case lock.StateDeviations:
+		s += fmt.Sprintf("; the plan run departs from the frozen one in %d key(s), each with a stated reason listed at the head of the report", len(st.Changes))
+	case lock.StateUnexplained:
+		s += fmt.Sprintf("; the plan run departs from the frozen one in %d key(s), %d of them without a stated reason", len(st.Changes), st.Unexplained())
+	}
+	return s
 }
 
 func short(h string) string {
