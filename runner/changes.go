@@ -3,9 +3,13 @@ package runner
 import (
 	"encoding/json"
 	"fmt"
+	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
+
+	"ordplan/render/numfmt"
 )
 
 // Changes compares this run's decisions with those of an earlier run
@@ -47,9 +51,14 @@ func Changes(prevDir string, cur *Decisions) ([]string, error) {
 		if p.RowsUsed != o.RowsUsed || p.RowsRead != o.RowsRead {
 			out = append(out, fmt.Sprintf("%s: rows used %d of %d (was %d of %d).", o.Outcome, o.RowsUsed, o.RowsRead, p.RowsUsed, p.RowsRead))
 		}
+		if c := countsChange(p, o); c != "" {
+			out = append(out, fmt.Sprintf("%s: %s.", o.Outcome, c))
+		}
 		pc, cc := deref(p.Chosen), deref(o.Chosen)
 		if pc != cc {
 			out = append(out, fmt.Sprintf("%s: the chosen model changed from %s to %s.", o.Outcome, pc, cc))
+		} else if o.Chosen != nil {
+			out = append(out, chosenChanges(o.Outcome, cc, p, o)...)
 		}
 		for _, id := range sortedKeys(o.Final) {
 			v := o.Final[id]
@@ -71,6 +80,77 @@ func Changes(prevDir string, cur *Decisions) ([]string, error) {
 		out = append(out, "No decision changed.")
 	}
 	return out, nil
+}
+
+// countsChange says how the outcome's category counts changed ("counts
+// per category poor 95, fair 184 (was 96, 184)"), or "" when they did not
+// or the categories differ (the plan changed, which is said already).
+func countsChange(p, o OutcomeDecisions) string {
+	if slices.Equal(p.Counts, o.Counts) || !slices.Equal(p.Categories, o.Categories) || len(o.Counts) != len(o.Categories) || len(p.Counts) != len(o.Counts) {
+		return ""
+	}
+	now := make([]string, len(o.Counts))
+	was := make([]string, len(p.Counts))
+	for i := range o.Counts {
+		now[i] = o.Categories[i] + " " + numfmt.Num(o.Counts[i])
+		was[i] = numfmt.Num(p.Counts[i])
+	}
+	return fmt.Sprintf("counts per category %s (was %s)", strings.Join(now, ", "), strings.Join(was, ", "))
+}
+
+// chosenChanges says, for a model chosen in both runs, how far its
+// estimates moved (the largest change in the earlier run's standard
+// errors, with the parameter) and which of the plan's hypotheses tested
+// in it changed their p-value; nothing when its estimates are the same.
+func chosenChanges(outcome, id string, p, o OutcomeDecisions) []string {
+	pf, of := fitDecision(p, id), fitDecision(o, id)
+	if pf == nil || of == nil || pf.LogLik == nil || of.LogLik == nil {
+		return nil
+	}
+	var out []string
+	worst, at := -1.0, ""
+	for _, name := range sortedKeys(of.Estimates) {
+		e, ok := pf.Estimates[name]
+		if !ok {
+			continue
+		}
+		d := math.Abs(of.Estimates[name] - e)
+		if se := pf.StdErrors[name]; se > 0 {
+			d /= se
+		}
+		if d > worst {
+			worst, at = d, name
+		}
+	}
+	if worst > 0 {
+		out = append(out, fmt.Sprintf("%s: %s, chosen in both runs: its estimates moved by at most %s standard errors (of the earlier run), the most %s (%s -> %s); log-likelihood %s -> %s.",
+			outcome, id, numfmt.Fixed(worst, 3), at, numfmt.Est(pf.Estimates[at]), numfmt.Est(of.Estimates[at]), numfmt.Fixed(*pf.LogLik, 3), numfmt.Fixed(*of.LogLik, 3)))
+	}
+	for _, h := range o.Hypotheses {
+		if h.Model != id || !h.Test.OK {
+			continue
+		}
+		for _, ph := range p.Hypotheses {
+			if ph.Model == id && ph.Text == h.Text && ph.Test.OK && ph.Test.P != h.Test.P {
+				was, now := numfmt.PValue(ph.Test.P), numfmt.PValue(h.Test.P)
+				if was == now {
+					was, now = numfmt.Num(ph.Test.P), numfmt.Num(h.Test.P)
+				}
+				out = append(out, fmt.Sprintf("%s: hypothesis %q in %s: p %s -> %s.", outcome, h.Text, id, was, now))
+			}
+		}
+	}
+	return out
+}
+
+// fitDecision finds a candidate's record by its id.
+func fitDecision(o OutcomeDecisions, id string) *FitDecision {
+	for i := range o.Fits {
+		if o.Fits[i].ID == id && !o.Fits[i].Auxiliary {
+			return &o.Fits[i]
+		}
+	}
+	return nil
 }
 
 func deref(s *string) string {

@@ -1,6 +1,8 @@
 package runner
 
 import (
+	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -29,5 +31,94 @@ func TestChangesWording(t *testing.T) {
 	want := "y: cumulative/partial/logit: in the earlier run rejected (likelihood-ratio test against cumulative/nonparallel/logit: chi2(3) = 20.1, p < 0.0001 < alpha 0.05); in this run chosen (BIC 901.010 (smallest 901.010), 12 parameters)."
 	if !strings.Contains(strings.Join(lines, "\n"), want) {
 		t.Errorf("got:\n%s\nwant a line:\n%s", strings.Join(lines, "\n"), want)
+	}
+}
+
+// TestChangesOfData: the data of a plan are updated (one value fixed, a
+// category recoded in some rows) and the plan run again with --previous.
+// The choice stays; the list says how the category counts changed and how
+// far the chosen model's estimates moved, in the earlier run's standard
+// errors, and the hypotheses' p-values. The largest move is found here by
+// hand from the two runs' estimates; the counts are counted from the files.
+func TestChangesOfData(t *testing.T) {
+	dir := t.TempDir()
+	write := func(recode int) {
+		var b strings.Builder
+		b.WriteString("x,g,y\n")
+		for i := range 200 {
+			y := 1 + (i*7+i%11)%3
+			if i < recode && y == 2 {
+				y = 3
+			}
+			fmt.Fprintf(&b, "%d,%d,%d\n", i%11, i%2, y)
+		}
+		if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	src := `version: 1
+data: {file: d.csv}
+outcomes: [{column: y, categories: ["1", "2", "3"]}]
+predictors: [x, g]
+models: {approaches: [cumulative], effects: [parallel], links: [logit]}
+tests: {parallel_lines: [wald]}
+rules:
+  - reject_unconverged: true
+  - choose: {by: aic}
+inference: {hypotheses: ["g = 0"]}
+`
+	write(0)
+	p := planIn(t, dir, src)
+	before := BuildDecisions(runPlan(t, p, 1))
+	prev := filepath.Join(dir, "prev")
+	os.Mkdir(prev, 0o755)
+	b, err := MarshalStable(before)
+	if err != nil {
+		t.Fatal(err)
+	}
+	os.WriteFile(filepath.Join(prev, "decisions.json"), b, 0o644)
+	write(30)
+	after := BuildDecisions(runPlan(t, planIn(t, dir, src), 1))
+	lines, err := Changes(prev, after)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got := strings.Join(lines, "\n")
+	// Counts: rows 0..29 with y = 2 became 3.
+	var moved int
+	for i := range 30 {
+		if 1+(i*7+i%11)%3 == 2 {
+			moved++
+		}
+	}
+	c0, c1 := before.Outcomes[0].Counts, after.Outcomes[0].Counts
+	if c1[1] != c0[1]-float64(moved) || c1[2] != c0[2]+float64(moved) {
+		t.Fatalf("counts %v -> %v, %d rows recoded", c0, c1, moved)
+	}
+	want := fmt.Sprintf("y: counts per category 1 %g, 2 %g, 3 %g (was %g, %g, %g).", c1[0], c1[1], c1[2], c0[0], c0[1], c0[2])
+	if !strings.Contains(got, want) {
+		t.Errorf("no line %q in:\n%s", want, got)
+	}
+	id := "cumulative/parallel/logit"
+	pf, of := fitDecision(before.Outcomes[0], id), fitDecision(after.Outcomes[0], id)
+	worst, at := 0.0, ""
+	for name, e := range of.Estimates {
+		if d := math.Abs(e-pf.Estimates[name]) / pf.StdErrors[name]; d > worst {
+			worst, at = d, name
+		}
+	}
+	if !strings.Contains(got, fmt.Sprintf("y: %s, chosen in both runs: its estimates moved by at most %.3f standard errors (of the earlier run), the most %s (", id, worst, at)) {
+		t.Errorf("no line on the chosen model's estimates (largest move %.3f at %s) in:\n%s", worst, at, got)
+	}
+	if !strings.Contains(got, `y: hypothesis "g = 0" in `+id+": p ") {
+		t.Errorf("no line on the hypothesis in:\n%s", got)
+	}
+	// The same data again: nothing changed.
+	same, err := Changes(prev, before)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(same) != 1 || same[0] != "No decision changed." {
+		t.Errorf("the same decisions: %q", same)
 	}
 }
