@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"slices"
 	"strconv"
 )
 
@@ -69,20 +70,99 @@ func diffValues(path string, a, b *value, out *[]Change) {
 		}
 		return
 	case a.array && b.array && (hasObjects(a) || hasObjects(b)):
-		n := max(len(a.items), len(b.items))
-		for i := 0; i < n; i++ {
-			var x, y *value
-			if i < len(a.items) {
-				x = a.items[i]
-			}
-			if i < len(b.items) {
-				y = b.items[i]
-			}
-			diffValues(fmt.Sprintf("%s[%d]", path, i), x, y, out)
-		}
+		diffItems(path, a.items, b.items, out)
 		return
 	}
 	*out = append(*out, Change{Path: path, From: a.text, To: b.text})
+}
+
+// diffItems compares two lists of mappings item by item. Items equal in
+// both lists are matched first (a longest common subsequence), so that a
+// removed or inserted item reads as one item removed or added, not as a
+// change of every item after it. Between matched items, as many items on
+// each side are compared in pairs, key by key; otherwise items with the
+// same keys (rules of one kind, outcomes) are matched the same way and
+// compared key by key, under their index in the current list, and the
+// items left over are removed (named by their index in the frozen list)
+// or added (by their index in the current one).
+func diffItems(path string, a, b []*value, out *[]Change) {
+	at := func(i int) string { return fmt.Sprintf("%s[%d]", path, i) }
+	same := func(x, y *value) bool { return x.text == y.text }
+	alike := func(x, y *value) bool { return x.object && y.object && slices.Equal(sortedKeys(x), sortedKeys(y)) }
+	// gap compares a[i0:i1] with b[j0:j1], which share no equal item.
+	gap := func(i0, i1, j0, j1 int) {
+		if i1-i0 == j1-j0 {
+			for k := range i1 - i0 {
+				diffValues(at(j0+k), a[i0+k], b[j0+k], out)
+			}
+			return
+		}
+		walk(a[i0:i1], b[j0:j1], alike, func(i, j int) {
+			switch {
+			case i < 0:
+				diffValues(at(j0+j), nil, b[j0+j], out)
+			case j < 0:
+				diffValues(at(i0+i), a[i0+i], nil, out)
+			default:
+				diffValues(at(j0+j), a[i0+i], b[j0+j], out)
+			}
+		})
+	}
+	i0, j0 := 0, 0
+	walk(a, b, same, func(i, j int) {
+		if i >= 0 && j >= 0 {
+			gap(i0, i, j0, j)
+			i0, j0 = i+1, j+1
+		}
+	})
+	gap(i0, len(a), j0, len(b))
+}
+
+// walk aligns two lists by a longest common subsequence of items that eq
+// matches, and calls visit in list order: (i, j) for a matched pair, (i,
+// -1) for an item of a alone, (-1, j) for an item of b alone.
+func walk(a, b []*value, eq func(x, y *value) bool, visit func(i, j int)) {
+	n, m := len(a), len(b)
+	common := make([][]int, n+1) // common[i][j]: of a[i:] and b[j:]
+	for i := range common {
+		common[i] = make([]int, m+1)
+	}
+	for i := n - 1; i >= 0; i-- {
+		for j := m - 1; j >= 0; j-- {
+			if eq(a[i], b[j]) {
+				common[i][j] = common[i+1][j+1] + 1
+			} else {
+				common[i][j] = max(common[i+1][j], common[i][j+1])
+			}
+		}
+	}
+	i, j := 0, 0
+	for i < n && j < m {
+		switch {
+		case eq(a[i], b[j]) && common[i][j] == common[i+1][j+1]+1:
+			visit(i, j)
+			i, j = i+1, j+1
+		case common[i+1][j] >= common[i][j+1]:
+			visit(i, -1)
+			i++
+		default:
+			visit(-1, j)
+			j++
+		}
+	}
+	for ; i < n; i++ {
+		visit(i, -1)
+	}
+	for ; j < m; j++ {
+		visit(-1, j)
+	}
+}
+
+// sortedKeys lists an object's keys in sorted order.
+func sortedKeys(v *value) []string {
+	k := slices.Clone(v.keys)
+	slices.Sort(k)
+	return k
 }
 
 func child(path, key string) string {

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 	"time"
@@ -249,5 +250,38 @@ func TestLockBytesAreStable(t *testing.T) {
 	}
 	if !strings.Contains(string(a), `"frozen_at": "2026-12-01T09:30:00Z"`) {
 		t.Errorf("time not in UTC RFC 3339:\n%s", a)
+	}
+}
+
+// A rule removed from (or inserted into) the registered list reads as that
+// one rule removed (added), not as a change of every rule after it; a rule
+// changed after the removal is named by its place in the plan as run.
+func TestRemovedAndInsertedRules(t *testing.T) {
+	for _, tc := range []struct {
+		name, src string
+		want      []string
+	}{
+		{"removed", strings.Replace(basePlan, "  - reject_unconverged: true\n", "", 1), []string{
+			`rules[0]: {"reject_unconverged": true} -> (absent)`,
+		}},
+		{"inserted", strings.Replace(basePlan, "  - choose: {by: aic}\n", "  - reject_negative_probabilities: true\n  - choose: {by: aic}\n", 1), []string{
+			`rules[2]: (absent) -> {"reject_negative_probabilities": true}`,
+		}},
+		{"removed, and a later rule changed", strings.Replace(strings.Replace(basePlan, "  - reject_unconverged: true\n", "", 1), "alpha: 0.05}", "alpha: 0.01}", 1), []string{
+			`rules[0].reject_if_test_rejects.alpha: 0.05 -> 0.01`,
+			`rules[0]: {"reject_unconverged": true} -> (absent)`,
+		}},
+	} {
+		p, _ := setup(t, tc.src)
+		st, _ := Check(p, true)
+		var got []string
+		for _, c := range st.Changes {
+			got = append(got, c.Path+": "+c.From+" -> "+c.To)
+		}
+		slices.Sort(got)
+		slices.Sort(tc.want)
+		if strings.Join(got, "\n") != strings.Join(tc.want, "\n") {
+			t.Errorf("%s: changes\n%s\nwant\n%s", tc.name, strings.Join(got, "\n"), strings.Join(tc.want, "\n"))
+		}
 	}
 }
