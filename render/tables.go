@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"strconv"
+	"strings"
 
 	"gonum.org/v1/gonum/stat/distuv"
 
@@ -181,15 +182,20 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		res := or.Chosen.Result
 		if ors, err := res.OddsRatios(level); err == nil {
 			rows = nil
-			for _, x := range ors {
+			ors, reads, omitted := readOddsRatios(or, ors)
+			for i, x := range ors {
 				b := ""
 				if x.Boundary > 0 {
 					b = res.Categories[x.Boundary-1] + "/" + res.Categories[x.Boundary]
 				}
-				rows = append(rows, []string{or.Chosen.ID, x.Predictor, strconv.Itoa(x.Boundary), b, x.Kind, csvNum(x.Log), csvNum(x.LogSE), csvNum(x.Ratio), csvNum(x.Low), csvNum(x.High)})
+				rows = append(rows, []string{or.Chosen.ID, x.Predictor, reads[i].Change, reads[i].Where, strconv.Itoa(x.Boundary), b, x.Kind, csvNum(x.Log), csvNum(x.LogSE), csvNum(x.Ratio), csvNum(x.Low), csvNum(x.High)})
 			}
-			add("odds-ratios", "exp(b) of the chosen model with "+lv+"% intervals (boundary 0: the same at every boundary)",
-				[]string{"model", "predictor", "boundary", "categories", "kind", "log_estimate", "log_se", "ratio", "low_" + lv, "high_" + lv}, rows)
+			about := "exp(b) of the chosen model with " + lv + "% intervals (boundary 0: the same at every boundary; change: what one unit of the column is; holds_at: where the terms the column's term interacts with have their columns at 0)"
+			if len(omitted) > 0 {
+				about += "; the columns of " + strings.Join(omitted, ", ") + " (polynomial or spline bases) have no odds ratio of their own and are left out"
+			}
+			add("odds-ratios", about,
+				[]string{"model", "predictor", "change", "holds_at", "boundary", "categories", "kind", "log_estimate", "log_se", "ratio", "low_" + lv, "high_" + lv}, rows)
 		}
 	}
 

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/csv"
 	"math"
+	"path/filepath"
 	"regexp"
 	"strconv"
 	"strings"
@@ -96,5 +97,36 @@ func TestMarkdownFigures(t *testing.T) {
 		if !bytes.Contains(b[:min(len(b), 400)], []byte("<svg")) {
 			t.Errorf("%s is not an SVG document", m[1])
 		}
+	}
+}
+
+// A spline term has no odds ratio per column (a unit of one basis column
+// with the others fixed is no change of age): the report says which
+// terms are left out, and the odds-ratio table and CSV hold only the
+// columns with a reading, each with its change (what exp(b) compares,
+// checked against the fitted probabilities in runner/readings_test.go).
+func TestOddsRatiosLeaveOutBasisColumns(t *testing.T) {
+	data, err := filepath.Abs(filepath.Join("testdata", "data", "small.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	src := `version: 1
+title: spline odds ratios
+data: {file: ` + data + `}
+outcomes: [{column: safety, categories: [very_unsafe, unsafe, neutral, safe, very_safe]}]
+predictors:
+  - pilot
+  - {name: age_s, column: age, spline: {knots: [20, 40, 60, 80]}}
+models: {approaches: [cumulative], effects: [parallel]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: bic}
+`
+	files := renderSource(t, t.TempDir(), src, 1)
+	md, orCSV := string(files["report.md"]), string(files["table-odds-ratios-safety.csv"])
+	hasAll(t, "report.md", md, "Not shown: the columns of age_s.", "| Predictor | Change | Boundary |", "| pilot | 1 against 0 | every boundary |")
+	hasAll(t, "odds-ratios CSV", orCSV, "model,predictor,change,holds_at,boundary,", ",pilot,1 against 0,,0,")
+	if strings.Contains(orCSV, "age_s") || strings.Contains(md, "| age_s.1 | column") {
+		t.Errorf("a spline column has an odds ratio:\n%s", orCSV)
 	}
 }

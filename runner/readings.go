@@ -1,0 +1,248 @@
+package runner
+
+import (
+	"fmt"
+	"math"
+	"slices"
+	"strconv"
+	"strings"
+
+	"ordplan/runner/design"
+)
+
+// ColumnReading says what one unit of a design column is, so that a slope
+// of that column, or exp(b) of it (an odds ratio under the logit link), can
+// be named: the change it compares, where it holds when the column's term
+// enters an interaction, and whether the column has a reading of its own at
+// all.
+type ColumnReading struct {
+	Column string
+	// Change is what a unit of the column is: "per unit of age", "per SD
+	// (3.11) of z", "1 against 0", "through_road against residential";
+	// for a product column, the changes of its components.
+	Change string
+	// Where is where the slope holds, when the column's term enters an
+	// interaction with other terms: those terms' columns at 0
+	// ("street_type = residential, x = 0"); empty otherwise.
+	Where string
+	// Alone is false for a column of a polynomial or spline basis (and a
+	// product with one): a unit change of one basis column with the others
+	// held fixed is no change of the predictor, so its slope has no
+	// reading of its own.
+	Alone bool
+	// named: the change reads without the term's name (a level, 1 against
+	// 0), so an interaction's reading puts the name before it.
+	named bool
+}
+
+// ColumnReadings gives the reading of every design column of the outcome,
+// in design order.
+func (or *OutcomeResult) ColumnReadings() []ColumnReading {
+	dz := or.Design
+	if dz == nil {
+		var out []ColumnReading
+		if or.FitData != nil {
+			for _, c := range or.FitData.Predictors {
+				out = append(out, ColumnReading{Column: c, Change: "per unit of " + c, Alone: true})
+			}
+		}
+		return out
+	}
+	per := make([][]ColumnReading, len(dz.Terms)) // the columns of each term, without Where
+	for k := range dz.Terms {
+		per[k] = or.termReadings(k, per)
+	}
+	var out []ColumnReading
+	for k := range dz.Terms {
+		where := interactionPartners(dz, k)
+		var at []string
+		for _, p := range where {
+			at = append(at, zeroText(dz, p))
+		}
+		for _, r := range per[k] {
+			r.Where = strings.Join(at, ", ")
+			out = append(out, r)
+		}
+	}
+	return out
+}
+
+// termReadings reads the columns of term k (the terms before it already
+// read, in per, for an interaction's components).
+func (or *OutcomeResult) termReadings(k int, per [][]ColumnReading) []ColumnReading {
+	dz := or.Design
+	t := &dz.Terms[k]
+	switch t.Kind {
+	case design.KindCategorical:
+		c := dz.Sources[t.Source].Cat
+		kept, ref := dz.Coded(t.Source)
+		var against []string // the level each column's level is compared with
+		var levels []string
+		for j, l := range kept {
+			switch {
+			case c.Coding == design.Successive && j > 0:
+				levels, against = append(levels, l), append(against, kept[j-1])
+			case c.Coding == design.Sum && l != ref:
+				levels, against = append(levels, l), append(against, "the unweighted mean of the levels")
+			case c.Coding != design.Successive && c.Coding != design.Sum && l != ref:
+				levels, against = append(levels, l), append(against, ref)
+			}
+		}
+		out := make([]ColumnReading, len(t.Columns))
+		for i, col := range t.Columns {
+			out[i] = ColumnReading{Column: col, Alone: true, named: true}
+			if i < len(levels) {
+				out[i].Change = levels[i] + " against " + against[i]
+			}
+		}
+		return out
+	case design.KindInteraction:
+		// Every product of one column of each component, the first
+		// component slowest (as the design names them).
+		type part struct {
+			change []string
+			alone  bool
+		}
+		prods := []part{{alone: true}}
+		for _, p := range t.Parts {
+			var next []part
+			for _, a := range prods {
+				for _, r := range per[p] {
+					ch := r.Change
+					if r.named {
+						ch = dz.Terms[p].Name + " " + ch
+					}
+					next = append(next, part{change: append(slices.Clone(a.change), ch), alone: a.alone && r.Alone})
+				}
+			}
+			prods = next
+		}
+		out := make([]ColumnReading, len(t.Columns))
+		for i, col := range t.Columns {
+			out[i] = ColumnReading{Column: col, Alone: prods[i].alone,
+				Change: "interaction: " + strings.Join(prods[i].change, " × ")}
+		}
+		return out
+	}
+	tr := t.Transform
+	expr := valueText(dz.Sources[t.Source].Name, tr)
+	if tr.Poly > 0 || tr.Spline() {
+		out := make([]ColumnReading, len(t.Columns))
+		for i, col := range t.Columns {
+			out[i] = ColumnReading{Column: col, Change: fmt.Sprintf("column %d of the basis in %s", i+1, expr)}
+		}
+		return out
+	}
+	r := ColumnReading{Column: t.Columns[0], Alone: true, Change: "per unit of " + expr}
+	switch {
+	case tr.Scale && !math.IsNaN(t.SD):
+		r.Change = fmt.Sprintf("per SD (%s) of %s", strconv.FormatFloat(t.SD, 'g', 6, 64), expr)
+	case !tr.Log && !tr.Sqrt && or.Data != nil && or.binarySource(t.Source):
+		r.Change, r.named = "1 against 0", true
+	}
+	return []ColumnReading{r}
+}
+
+// valueText writes the value a numeric term's columns are made of, before
+// centring and scaling: "x", "log(x + 1)", "sqrt(x)".
+func valueText(col string, tr design.Transform) string {
+	switch {
+	case tr.Log && tr.Shift != 0:
+		return fmt.Sprintf("log(%s + %g)", col, tr.Shift)
+	case tr.Log:
+		return fmt.Sprintf("log(%s)", col)
+	case tr.Sqrt:
+		return fmt.Sprintf("sqrt(%s)", col)
+	}
+	return col
+}
+
+// baseTerms lists the terms that are not interactions under term k: k
+// itself, or the components of an interaction, recursively.
+func baseTerms(dz *design.Design, k int) []int {
+	t := &dz.Terms[k]
+	if t.Kind != design.KindInteraction {
+		return []int{k}
+	}
+	var out []int
+	for _, p := range t.Parts {
+		for _, b := range baseTerms(dz, p) {
+			if !slices.Contains(out, b) {
+				out = append(out, b)
+			}
+		}
+	}
+	return out
+}
+
+// interactionPartners lists the terms whose columns at 0 make the slopes
+// of term k's columns what they are: the other components of every
+// interaction that contains all of k's components, in design order.
+func interactionPartners(dz *design.Design, k int) []int {
+	mine := baseTerms(dz, k)
+	var out []int
+	for i := range dz.Terms {
+		if i == k || dz.Terms[i].Kind != design.KindInteraction {
+			continue
+		}
+		all := baseTerms(dz, i)
+		if len(all) <= len(mine) || !containsAll(all, mine) {
+			continue
+		}
+		for _, b := range all {
+			if !slices.Contains(mine, b) && !slices.Contains(out, b) {
+				out = append(out, b)
+			}
+		}
+	}
+	slices.Sort(out)
+	return out
+}
+
+func containsAll(set, sub []int) bool {
+	for _, s := range sub {
+		if !slices.Contains(set, s) {
+			return false
+		}
+	}
+	return true
+}
+
+// zeroText says where the columns of term k are 0: "street_type =
+// residential", "x = 2.5", "the columns of age2 at 0".
+func zeroText(dz *design.Design, k int) string {
+	t := &dz.Terms[k]
+	if t.Kind == design.KindCategorical {
+		c := dz.Sources[t.Source].Cat
+		kept, ref := dz.Coded(t.Source)
+		switch c.Coding {
+		case design.Sum:
+			return "the unweighted mean over the levels of " + t.Name
+		case design.Successive:
+			return t.Name + " = " + kept[0]
+		}
+		return t.Name + " = " + ref
+	}
+	tr := t.Transform
+	col := dz.Sources[t.Source].Name
+	if tr.Poly > 0 || tr.Spline() {
+		return "the columns of " + t.Name + " at 0"
+	}
+	u := 0.0 // the value of log/sqrt at which the column is 0
+	switch tr.Centre {
+	case "mean":
+		u = t.Mean
+	case "value":
+		u = tr.CentreAt
+	}
+	num := func(x float64) string { return strconv.FormatFloat(x, 'g', 6, 64) }
+	switch {
+	case tr.Log:
+		return fmt.Sprintf("%s = %s", col, num(math.Exp(u)-tr.Shift))
+	case tr.Sqrt && u >= 0:
+		return fmt.Sprintf("%s = %s", col, num(u*u))
+	case tr.Sqrt:
+		return fmt.Sprintf("sqrt(%s) = %s", col, num(u))
+	}
+	return fmt.Sprintf("%s = %s", col, num(u))
+}
