@@ -18,6 +18,9 @@ import (
 // its interval, against the one slope of the parallel model: the picture
 // of the parallel-lines assumption.
 func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
+	if binary(or) {
+		return // one boundary: nothing to compare across
+	}
 	d.h(3, "Effects across boundaries")
 	ch := or.Chosen
 	if ch == nil {

@@ -192,8 +192,8 @@ func writeLimits(d *doc, r *runner.Result) {
 	items := []string{
 		"The models describe how the outcome is associated with the predictors in these data. They do not show that a predictor causes a change in the outcome; neither do the predicted probabilities or the marginal effects, which are summaries of the same fitted association.",
 		independenceSentence(r),
-		"Tests of the parallel-lines assumption reject easily in large samples: a small p-value can reflect a difference between boundaries too small to matter in practice. Look at the effects across boundaries before giving up a simpler model.",
-		"Cumulative partial and nonparallel models can predict negative category probabilities for some covariate values (their cumulative probabilities cross). The number of rows of the data where this happens is shown for every model, and predictions on the grid of the focus predictor are checked too; predictions outside the observed covariate range are more exposed.",
+		boundariesSentence(r, "Tests of the parallel-lines assumption reject easily in large samples: a small p-value can reflect a difference between boundaries too small to matter in practice. Look at the effects across boundaries before giving up a simpler model."),
+		boundariesSentence(r, "Cumulative partial and nonparallel models can predict negative category probabilities for some covariate values (their cumulative probabilities cross). The number of rows of the data where this happens is shown for every model, and predictions on the grid of the focus predictor are checked too; predictions outside the observed covariate range are more exposed."),
 		startsSentence(r),
 		rowsSentence(r),
 		"The chosen model's standard errors, p-values and intervals (of its estimates, predicted probabilities and marginal effects) treat it as fixed in advance, not as the result of the selection made by the rules, and of any stepwise choice of partial effects, on the same data: they leave out the uncertainty of that selection, so intervals tend to be too narrow and p-values too small.",
@@ -201,6 +201,18 @@ func writeLimits(d *doc, r *runner.Result) {
 		multiplicitySentence(r),
 	}
 	d.list(slices.DeleteFunc(items, func(s string) bool { return s == "" }))
+}
+
+// boundariesSentence is s when some outcome has more than two categories
+// (more than one boundary), "" when every outcome is binary and s does not
+// apply.
+func boundariesSentence(r *runner.Result, s string) string {
+	for _, or := range r.Outcomes {
+		if !binary(or) {
+			return s
+		}
+	}
+	return ""
 }
 
 // multiplicitySentence says, when the plan's hypotheses make more than one

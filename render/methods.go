@@ -142,7 +142,9 @@ func writeMethods(d *doc, r *runner.Result) {
 		if sel := p.Models.Partial.Select; sel != nil {
 			s = append(s, fmt.Sprintf("The predictors allowed non-parallel effects were selected by backward stepwise imposition of parallel constraints with %s tests at alpha = %g %s.", sel.Test.Title(), sel.Alpha, c.cite("williams")))
 		}
-		if len(p.Tests.ParallelLines) > 0 {
+		if len(p.Tests.ParallelLines) > 0 && binary(or) {
+			s = append(s, "With two categories the parallel-lines assumption has nothing to test (every effect structure gives the same model), so no parallel-lines test was computed.")
+		} else if len(p.Tests.ParallelLines) > 0 {
 			var tests, barred, logitOnly []string
 			for _, t := range p.Tests.ParallelLines {
 				if r.Analysis.Errors.Sampling && t.NeedsLikelihood() {

@@ -139,6 +139,9 @@ func writeModelTable(d *doc, or *runner.OutcomeResult, sampling bool) {
 		rows = append(rows, modelRow(f))
 	}
 	d.captioned("The candidate models").table([]string{"Model", "Status", "Log-likelihood", "Parameters", "AIC", "BIC", "Rows with P<0", "Verdict"}, rows)
+	if binary(or) {
+		d.p("%s The cumulative, stage and adjacent comparisons are the same model too: a binary regression with the model's link. Candidates that differ only in these are the same fit, with the same criteria; the rules' ties between them are broken by the order of the plan's grid.", oneBoundary)
+	}
 	if s := auxiliaryNote(or); s != "" {
 		d.p("%s", s)
 	}

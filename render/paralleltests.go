@@ -8,8 +8,19 @@ import (
 	"ordplan/runner/fit"
 )
 
+// oneBoundary is the sentence said of an outcome with two categories,
+// for which the parallel-lines assumption has nothing to test.
+const oneBoundary = "With two categories there is one boundary, so every predictor has one slope whatever the effect structure: parallel, partial and nonparallel effects give the same model, and the parallel-lines assumption has nothing to test."
+
+// binary reports whether an outcome has two categories.
+func binary(or *runner.OutcomeResult) bool { return or.FitData != nil && or.FitData.J == 2 }
+
 func writeTests(d *doc, or *runner.OutcomeResult) {
 	d.h(3, "Tests of the parallel-lines assumption")
+	if binary(or) {
+		d.p("%s The tests the plan asks for were not computed for this outcome.", oneBoundary)
+		return
+	}
 	d.p("Each test compares the model with one slope per predictor against the model with a slope per category boundary. Small p-values speak against parallel lines; in large samples they reject even differences too small to matter.")
 	for _, tb := range or.Tests {
 		d.h(4, tb.Approach.String()+", "+tb.Link.String())

@@ -1,0 +1,78 @@
+package render
+
+import (
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"ordplan/runner/fit"
+)
+
+// TestBinaryOutcomeReport: with two categories every effect structure and
+// every comparison of one link is the same binary regression (checked
+// here: equal log-likelihoods), so the report says the parallel-lines
+// assumption has nothing to test instead of tables of tests not computed,
+// has no section of effects across boundaries (one boundary), does not
+// claim in its methods that the parallel-lines assumption was tested, and
+// leaves out the limits about parallel-lines tests and crossing
+// probabilities. The data are invented (x, g on a fixed pattern).
+func TestBinaryOutcomeReport(t *testing.T) {
+	dir := t.TempDir()
+	var b strings.Builder
+	b.WriteString("x,g,y\n")
+	for i := range 160 {
+		fmt.Fprintf(&b, "%d,%d,%s\n", i%9, i%2, []string{"no", "yes"}[(i*7+i%9+i%2)%5/3])
+	}
+	if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	src := `version: 1
+data: {file: d.csv}
+outcomes: [{column: y, categories: ["no", "yes"]}]
+predictors: [x, g]
+models: {approaches: [cumulative, stage, adjacent], effects: [parallel, nonparallel], links: [logit, cloglog]}
+tests: {parallel_lines: [lr, wald, score]}
+rules:
+  - reject_unconverged: true
+  - reject_if_test_rejects: {test: lr}
+  - choose: {by: aic}
+`
+	if err := os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	res := runPlan(t, filepath.Join(dir, "p.yaml"), 1)
+	or := res.Outcomes[0]
+	for _, l := range []fit.Link{fit.Logit, fit.Cloglog} {
+		ref := or.Cell(fit.Cumulative, fit.ParallelEffects, l).Result.LogLik
+		for _, a := range []fit.Comparison{fit.Cumulative, fit.Stage, fit.Adjacent} {
+			for _, e := range []fit.Structure{fit.ParallelEffects, fit.NonparallelEffects} {
+				if ll := or.Cell(a, e, l).Result.LogLik; math.Abs(ll-ref) > 1e-8*math.Abs(ref) {
+					t.Errorf("%s/%s/%s: log-likelihood %v, cumulative/parallel %v: not the same binary regression", a, e, l, ll, ref)
+				}
+			}
+		}
+	}
+	md := string(outputsOf(t, res)["report.md"])
+	tests := md[strings.Index(md, "### Tests of the parallel-lines assumption"):strings.Index(md, "### Decision log")]
+	if !strings.Contains(tests, oneBoundary) || strings.Contains(tests, "**Table") {
+		t.Errorf("tests section:\n%s", tests)
+	}
+	if strings.Contains(md, "Effects across boundaries") {
+		t.Errorf("a section of effects across boundaries for one boundary")
+	}
+	methods := md[strings.Index(md, "## Methods"):strings.Index(md, "## Reproducibility")]
+	if strings.Contains(methods, "The parallel-lines assumption was tested") || !strings.Contains(methods, "no parallel-lines test was computed") {
+		t.Errorf("methods:\n%s", methods)
+	}
+	limits := md[strings.Index(md, "## Assumptions and limits"):strings.Index(md, "## Methods")]
+	if strings.Contains(limits, "Tests of the parallel-lines assumption reject easily") || strings.Contains(limits, "negative category probabilities") {
+		t.Errorf("limits:\n%s", limits)
+	}
+	models := md[strings.Index(md, "### The models"):strings.Index(md, "### Overall fit")]
+	if !strings.Contains(models, "The cumulative, stage and adjacent comparisons are the same model too") {
+		t.Errorf("models:\n%s", models)
+	}
+}
