@@ -165,6 +165,36 @@ func ClusterWarnings(p *plan.Plan) []string {
 	return out
 }
 
+// BinaryWarnings are the warnings check and run print for each outcome
+// declared with two categories whose plan compares what cannot differ with
+// one boundary: several effect structures or approaches (each link's
+// candidates are then one binary regression), parallel-lines tests or a
+// test rule (nothing to test); none otherwise.
+func BinaryWarnings(p *plan.Plan) []string {
+	var out []string
+	for i, o := range p.Outcomes {
+		if len(o.Categories) != 2 {
+			continue
+		}
+		var what []string
+		if len(p.Models.Effects) > 1 || len(p.Models.Approaches) > 1 {
+			what = append(what, "every effect structure and approach of one link is the same binary regression, so the grid's candidates of a link are one model fitted several times")
+		}
+		if len(p.Tests.ParallelLines) > 0 {
+			what = append(what, "the parallel-lines tests have nothing to test and are not computed")
+		}
+		for _, r := range p.Rules {
+			if r.Kind == plan.RuleRejectIfTestRejects {
+				what = append(what, fmt.Sprintf("the rule at line %d (reject_if_test_rejects) can test nothing and keeps every model", r.Line))
+			}
+		}
+		if len(what) > 0 {
+			out = append(out, fmt.Sprintf("outcomes[%d] (%s) has two categories, one boundary: %s", i, o.Column, strings.Join(what, "; ")))
+		}
+	}
+	return out
+}
+
 // DescribeRule says what a rule does, in plain words.
 func (an *Analysis) DescribeRule(r plan.Rule) string {
 	switch r.Kind {

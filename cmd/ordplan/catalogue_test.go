@@ -693,6 +693,15 @@ func catalogue(dir string) (items []badInput) {
 		{id: "P33", name: "sampling weights with likelihood-ratio stepwise selection", args: []string{"check"},
 			plan: edit("file: d.csv", "file: w.csv\n  weights: w0\n  weight_kind: sampling", "[parallel, nonparallel]", "[parallel, partial]\n  partial: {select: {test: lr}}", "{by: aic}", "{by: tic}"), code: 1,
 			want: []string{`models.partial.select.test: the likelihood-ratio test needs a likelihood, but with sampling weights (data.weight_kind: sampling) the fits maximize a pseudo-likelihood; use test: wald (the default)`}},
+		{id: "P34", name: "two-category outcome with a grid and tests made for several boundaries", args: []string{"check"},
+			plan: edit("  - column: y", "  - column: b\n    categories: [\"0\", \"1\"]", "[a, b]", "[a]", "reject_unconverged: true", "reject_if_test_rejects: {test: lr}"), code: 0,
+			want: []string{"plan is valid"},
+			check: func(t *testing.T, dir, out, errs string) {
+				want := `P34.yaml: outcomes[0] (b) has two categories, one boundary: every effect structure and approach of one link is the same binary regression, so the grid's candidates of a link are one model fitted several times; the parallel-lines tests have nothing to test and are not computed; the rule at line 13 (reject_if_test_rejects) can test nothing and keeps every model`
+				if !strings.Contains(errs, want) {
+					t.Errorf("stderr:\n%s\nwant:\n%s", errs, want)
+				}
+			}},
 		{id: "P24", name: "fallback not in the plan", args: []string{"check"},
 			plan: edit("{by: aic}", "{by: aic, otherwise: cumulative/stereotype/probit}"), code: 1,
 			want: []string{`rules[1].choose.otherwise: the fallback cumulative/stereotype/probit is not a model of the plan: effects "stereotype" are not in models.effects; link "probit" is not in models.links`}},

@@ -67,7 +67,7 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 		warnUnedited(p, stderr)
 		fmt.Fprintf(stdout, "note: %d place(s) still marked %s by ordplan init (listed on standard error): check each and delete its marker; ordplan freeze refuses the plan until then\n", len(p.Unedited), plan.EditMarker)
 	}
-	warnClusters(p, stderr)
+	warnPlan(p, stderr)
 	fmt.Fprintln(stdout, "The rules, in the order they will be applied to the models of each outcome:")
 	for _, s := range runner.DescribeRules(p) {
 		fmt.Fprintln(stdout, "  "+s)
@@ -103,7 +103,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 		return exitFail
 	}
 	warnUnedited(p, stderr)
-	warnClusters(p, stderr)
+	warnPlan(p, stderr)
 	reg, code := registration(p, *allow, stderr)
 	if code != exitOK {
 		return code
@@ -240,11 +240,16 @@ func warnUnedited(p *plan.Plan, stderr io.Writer) {
 	}
 }
 
-// warnClusters prints, on stderr, each rule or stepwise selection of p
-// that reads a statistic ignoring the clusters of clustered errors
-// (runner.ClusterWarnings); the command goes on.
-func warnClusters(p *plan.Plan, stderr io.Writer) {
+// warnPlan prints, on stderr, each rule or stepwise selection of p that
+// reads a statistic ignoring the clusters of clustered errors
+// (runner.ClusterWarnings) and each two-category outcome whose grid and
+// tests are made for several boundaries (runner.BinaryWarnings); the
+// command goes on.
+func warnPlan(p *plan.Plan, stderr io.Writer) {
 	for _, w := range runner.ClusterWarnings(p) {
+		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
+	}
+	for _, w := range runner.BinaryWarnings(p) {
 		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
 	}
 }
