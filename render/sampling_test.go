@@ -109,7 +109,11 @@ rules:
 		"fitted by maximum pseudo-likelihood with the sampling weights of `w`",
 		"are not computed, so none of them is pooled",
 	)
-	hasAll(t, "decisions.json", string(files["decisions.json"]), `"method": "none"`)
+	dec := string(files["decisions.json"])
+	hasAll(t, "decisions.json", dec, `"method": "none"`, "Wald tests pooled by D1 (with sampling weights no likelihood-based statistic is a test")
+	if strings.Contains(dec, "likelihood-ratio tests pooled by D3") {
+		t.Error("decisions.json's imputation method says likelihood-ratio tests were pooled by D3 under sampling weights")
+	}
 }
 
 // TestSamplingPatternSplitShowsNoStatistic: under sampling weights the

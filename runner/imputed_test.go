@@ -212,7 +212,7 @@ func TestImputedDifferentSets(t *testing.T) {
 	if or.Chosen == nil {
 		t.Fatal("nothing chosen")
 	}
-	rec := imputationRecord(or)
+	rec := imputationRecord(or, false)
 	if rec == nil || rec.Sets != 5 || len(rec.Pooling) != 2 || rec.Pooling[0].Parameters[j].FMI != f.Pooled.FMI[j] {
 		t.Errorf("decisions.json imputation record %+v", rec)
 	}

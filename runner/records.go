@@ -116,14 +116,17 @@ type PoolingParam struct {
 	FMI      float64  `json:"fraction_missing_information"`
 }
 
-func imputationRecord(or *OutcomeResult) *ImputationRecord {
+func imputationRecord(or *OutcomeResult, sampling bool) *ImputationRecord {
 	im := or.Imputed
 	if im == nil {
 		return nil
 	}
+	method := "Rubin's rules with Barnard-Rubin degrees of freedom; likelihood-ratio tests pooled by D3, Wald tests by D1; log-likelihood, AIC and BIC are means over the sets"
+	if sampling {
+		method = "Rubin's rules with Barnard-Rubin degrees of freedom; Wald tests pooled by D1 (with sampling weights no likelihood-based statistic is a test, so none is pooled by D3 or D2); log-likelihood, AIC and BIC are means over the sets, descriptive only"
+	}
 	rec := &ImputationRecord{Sets: im.M, Source: im.Source, Files: im.Files, Column: im.Column, Rows: im.Rows, Imputation: im.Chained,
-		Method:  "Rubin's rules with Barnard-Rubin degrees of freedom; likelihood-ratio tests pooled by D3, Wald tests by D1; log-likelihood, AIC and BIC are means over the sets",
-		Pooling: []PoolingFit{}}
+		Method: method, Pooling: []PoolingFit{}}
 	for _, f := range or.Fits {
 		if f.Auxiliary || f.Pooled == nil || !f.OK() {
 			continue
@@ -227,7 +230,7 @@ func BuildDecisions(r *Result) *Decisions {
 			od.Chosen = &id
 		}
 		od.Overall = or.Overall
-		od.Imputation = imputationRecord(or)
+		od.Imputation = imputationRecord(or, r.Analysis != nil && r.Analysis.Errors.Sampling)
 		if od.Overall == nil {
 			od.Overall = []OverallRecord{}
 		}
