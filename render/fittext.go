@@ -21,6 +21,9 @@ type DataSummary struct {
 	RowsRead    int
 	RowsUsed    int
 	DropSummary string
+	// Sampling: the weights are sampling weights, whose sum is no count
+	// of observations.
+	Sampling bool
 }
 
 // ParamLabel adds the category boundary to the names of boundary
@@ -45,7 +48,11 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 	if ds.File != "" {
 		fmt.Fprintf(tw, "Data\t%s: %d rows read, %d used; %s\n", ds.File, ds.RowsRead, ds.RowsUsed, ds.DropSummary)
 	}
-	fmt.Fprintf(tw, "Observations\t%s\n", numfmt.Count(r.NObs))
+	if ds.Sampling {
+		fmt.Fprintf(tw, "Observations\t%d rows; sampling weights summing to %s (AIC and BIC descriptive only)\n", r.NRows, numfmt.Count(r.NObs))
+	} else {
+		fmt.Fprintf(tw, "Observations\t%s\n", numfmt.Count(r.NObs))
+	}
 	fmt.Fprintf(tw, "Status\t%s\n", statusLine(r))
 	if r.OK() {
 		fmt.Fprintf(tw, "Log-likelihood\t%s\n", numfmt.Fixed(r.LogLik, 6))

@@ -80,7 +80,7 @@ func covariancePolicy(asked fit.Covariance, sampling bool) CovariancePolicy {
 // fitOptions are the options of the fits under the policy: a sandwich is
 // computed after the fit (Sandwich), from observed-information fits.
 func (c CovariancePolicy) fitOptions(workers int) fit.Options {
-	o := fit.Options{Covariance: fit.Observed, Workers: workers}
+	o := fit.Options{Covariance: fit.Observed, Workers: workers, Sampling: c.Sampling}
 	if c.Covariance == fit.Expected {
 		o.Covariance = fit.Expected
 	}

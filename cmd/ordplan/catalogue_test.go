@@ -81,7 +81,7 @@ func catalogueData(t *testing.T, dir string) {
 	rng := rand.New(rand.NewPCG(20261202, 7))
 	var base, sep, quasi, quasi0, weights strings.Builder
 	base.WriteString("y,a,b,c,d,big,tiny\n")
-	weights.WriteString("y,a,b,w0,wneg,wmiss\n")
+	weights.WriteString("y,a,b,w0,wneg,wmiss,ws,wn\n")
 	for i := 0; i < 120; i++ {
 		// a with four decimals, so that "e8" and "e-8" rescale it exactly.
 		a := float64(rng.IntN(40000)-20000) / 1e4
@@ -106,7 +106,8 @@ func catalogueData(t *testing.T, dir string) {
 		case 11:
 			wmiss = ""
 		}
-		fmt.Fprintf(&weights, "%d,%s,%d,%s,%s,%s\n", y, as, b, w0, wneg, wmiss)
+		// ws and wn: the same sampling weights, wn scaled to sum to 0.24.
+		fmt.Fprintf(&weights, "%d,%s,%d,%s,%s,%s,%d,%g\n", y, as, b, w0, wneg, wmiss, 1+i%3, float64(1+i%3)/1000)
 	}
 	// Complete separation: x orders the outcome perfectly.
 	sep.WriteString("y,x,z\n")
@@ -824,13 +825,32 @@ func catalogue(dir string) (items []badInput) {
 		{id: "W1", name: "zero weights", args: fitArgs(d("w.csv"), "--predictors", "a,b", "--weights", "w0"), code: 0,
 			want: []string{"120 rows read, 119 used; 1 of 120 rows dropped for missing values or zero weight (w0 = 0: 1)", "Observations     119"}},
 		{id: "W2", name: "negative weight", args: fitArgs(d("w.csv"), "--predictors", "a,b", "--weights", "wneg"), code: 1,
-			want: []string{`w.csv:11: column "wneg": weight "-1" is negative (frequency weights must be zero or more)`}},
+			want: []string{`w.csv:11: column "wneg": weight "-1" is negative (weights must be zero or more; a row of weight 0 is dropped)`}},
 		{id: "W3", name: "missing weight", args: fitArgs(d("w.csv"), "--predictors", "a,b", "--weights", "wmiss", "--json"), code: 0,
 			want: []string{`"nobs": 119`},
 			check: func(t *testing.T, dir, out, errs string) {
 				tab, _, _ := runCLI(fitArgs(filepath.Join(dir, "w.csv"), "--predictors", "a,b", "--weights", "wmiss")...)
 				if !strings.Contains(tab, "1 of 120 rows dropped for missing values or zero weight (wmiss: 1)") {
 					t.Errorf("the dropped row is not counted:\n%s", tab)
+				}
+			}},
+		{id: "W5", name: "sampling weights normalized to a sum below the parameters", args: fitArgs(d("w.csv"), "--predictors", "a,b", "--weights", "wn", "--weight-kind", "sampling"), code: 0,
+			want: []string{"Observations     120 rows; sampling weights summing to 0.24 (AIC and BIC descriptive only)"},
+			check: func(t *testing.T, dir, out, errs string) {
+				// The same weights at another scale: the same estimates
+				// and sandwich errors (the estimating equations differ by
+				// a constant factor).
+				estimates := func(col string) string {
+					o, e, code := runCLI(fitArgs(filepath.Join(dir, "w.csv"), "--predictors", "a,b", "--weights", col, "--weight-kind", "sampling")...)
+					if code != 0 {
+						t.Fatalf("%s: exit %d: %s", col, code, e)
+					}
+					_, table, _ := strings.Cut(o, "\n\n")
+					table, _, _ = strings.Cut(table, "\n\n")
+					return table
+				}
+				if a, b := estimates("ws"), estimates("wn"); a != b {
+					t.Errorf("sampling weights at two scales give other estimates:\n%s\n---\n%s", a, b)
 				}
 			}},
 		{id: "W4", name: "every weight zero", args: []string{"run"},

@@ -183,7 +183,7 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 	for _, n := range ds.Notes {
 		drop += "; " + strings.TrimSuffix(n, ".")
 	}
-	sum := render.DataSummary{File: s.DataName(), Outcome: *f.outcome, RowsRead: ds.RowsRead, RowsUsed: ds.N, DropSummary: drop}
+	sum := render.DataSummary{File: s.DataName(), Outcome: *f.outcome, RowsRead: ds.RowsRead, RowsUsed: ds.N, DropSummary: drop, Sampling: s.Sampling}
 	if err := f.print(stdout, res, sum, base, checks); err != nil {
 		return fail(stderr, err)
 	}

@@ -71,7 +71,7 @@ func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, std
 	for _, n := range whole.Notes {
 		drop += "; " + strings.TrimSuffix(n, ".")
 	}
-	sum := render.DataSummary{File: s.DataName(), Outcome: s.Outcome, RowsRead: read, RowsUsed: whole.Rows, DropSummary: drop}
+	sum := render.DataSummary{File: s.DataName(), Outcome: s.Outcome, RowsRead: read, RowsUsed: whole.Rows, DropSummary: drop, Sampling: s.Sampling}
 	if err := f.print(stdout, res, sum, base, checks); err != nil {
 		return fail(stderr, err)
 	}

@@ -65,7 +65,7 @@ func TestReadErrors(t *testing.T) {
 		{"non-numeric offset", "y,a,o\n1,2,zz\n", Options{Outcome: "y", Offset: "o"}, 2, "o",
 			`t.csv:2: column "o": value "zz" is not a number`},
 		{"negative weight", "y,w\n1,-2\n2,1\n", Options{Outcome: "y", Weights: "w"}, 2, "w",
-			`t.csv:2: column "w": weight "-2" is negative (frequency weights must be zero or more)`},
+			`t.csv:2: column "w": weight "-2" is negative (weights must be zero or more; a row of weight 0 is dropped)`},
 		{"undeclared category", "y,a\nlow,1\nmedium,2\n", labelled, 3, "y",
 			`t.csv:3: column "y": value "medium" is not one of the declared categories: "low", "mid", "high"`},
 		{"outcome not integer", "y,a,b\n1,2,3\n2.5,2,3\n", opts, 3, "y",

@@ -270,7 +270,7 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 		case roleWeights:
 			row.w, msg = r.opt.Dialect.number(cell)
 			if msg == "" && row.w < 0 {
-				msg = "weight " + quoteCell(cell) + " is negative (frequency weights must be zero or more)"
+				msg = "weight " + quoteCell(cell) + " is negative (weights must be zero or more; a row of weight 0 is dropped)"
 			}
 		case roleOffset:
 			row.off, msg = r.opt.Dialect.number(cell)

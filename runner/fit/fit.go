@@ -106,6 +106,12 @@ type Options struct {
 	// best log-likelihood found so far (runStart), which saves iterations
 	// and leaves the maximum reported as it is (the tests check this).
 	KeepStarts bool `json:"keep_starts,omitempty"`
+	// Sampling says the weights are sampling weights: their scale is
+	// arbitrary (weights that sum to 1 describe the same sample as weights
+	// that sum to the population), so what a fit counts (observations
+	// against parameters, the groups of the calibration table) are rows,
+	// not the weights' sum.
+	Sampling bool `json:"sampling,omitempty"`
 	// Sandwich, when set, replaces the covariance of every usable fit that
 	// Stepwise makes before it tests (robust or cluster-robust errors).
 	// Fit itself ignores it.
@@ -260,6 +266,9 @@ func fitChecked(d *Data, m Model, opt Options, sh *shared) (res *Result, err err
 		return nil, &InputError{err.Error()}
 	}
 	nobs := d.NObs()
+	if opt.Sampling {
+		nobs = float64(d.N())
+	}
 	if float64(len(ly.params)) > nobs {
 		return nil, inputErr("model %s has %d parameters but only %g observations", m.Name(), len(ly.params), nobs)
 	}

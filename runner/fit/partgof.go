@@ -433,7 +433,7 @@ func LipsitzOverParts(r *Result, w Whole, parts ScoreParts, groups int, opt Opti
 	}
 	base := ScoreQuery{Model: r.Model, Estimates: r.Estimates}
 	// Phases 1 and 2: the cut.
-	cuts, why, err := cutOverParts(base, parts, groups, r.J)
+	cuts, why, err := cutOverParts(base, parts, groups, r.J, opt.Sampling)
 	if err != nil {
 		return nil, err
 	}
@@ -510,7 +510,7 @@ func indicatorSpread(s *Spread, t *ScoreGroups) *Spread {
 
 // cutOverParts forms the groups of LipsitzTest over the parts (phases 1
 // and 2): the cuts, or why there are none.
-func cutOverParts(base ScoreQuery, parts ScoreParts, groups, J int) ([]uint64, string, error) {
+func cutOverParts(base ScoreQuery, parts ScoreParts, groups, J int, sampling bool) ([]uint64, string, error) {
 	q := base
 	q.Step = StepSpan
 	answers, err := parts.Ask(&q)
@@ -518,8 +518,10 @@ func cutOverParts(base ScoreQuery, parts ScoreParts, groups, J int) ([]uint64, s
 		return nil, "", err
 	}
 	total, whole, lo, hi := 0.0, true, uint64(math.MaxUint64), uint64(0)
+	rows := 0
 	for _, a := range answers {
 		s := a.Span
+		rows += s.Rows
 		if s.NaN {
 			return nil, "a predicted score is not a number", nil
 		}
@@ -532,7 +534,10 @@ func cutOverParts(base ScoreQuery, parts ScoreParts, groups, J int) ([]uint64, s
 	if total <= 0 {
 		return nil, "no rows", nil
 	}
-	if groups <= 0 {
+	switch {
+	case groups <= 0 && sampling:
+		groups = DefaultScoreGroups(float64(rows), J) // as LipsitzTest
+	case groups <= 0:
 		groups = DefaultScoreGroups(total, J)
 	}
 	c := &partCut{parts: parts, base: base, groups: groups, total: total}

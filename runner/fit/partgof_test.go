@@ -108,7 +108,7 @@ func TestLipsitzOverPartsEqualsLocal(t *testing.T) {
 				}
 				t.Logf("%s (fine %v): %d queries to the parts; chi2 %.10g here, %.10g over the parts", name, fine, lp.asked, local.Test.Chi2, got.Test.Chi2)
 				lt, gt := local.Table, got.Table
-				cuts, _, err := cutOverParts(ScoreQuery{Model: r.Model, Estimates: r.Estimates}, lp, 0, d.J)
+				cuts, _, err := cutOverParts(ScoreQuery{Model: r.Model, Estimates: r.Estimates}, lp, 0, d.J, false)
 				_, score, err2 := (&ScoreQuery{Model: r.Model, Estimates: r.Estimates, Step: StepTable}).scores(&d)
 				if err != nil || err2 != nil || !slices.Equal(groupsOf(score, cuts), lt.group) {
 					t.Errorf("%s: the rows' groups under the cut are not LipsitzTest's (%v %v)", name, err, err2)
