@@ -47,7 +47,7 @@ type canonPlan struct {
 }
 
 type canonData struct {
-	File          string           `json:"file"`
+	File          *string          `json:"file"` // null when the data are parts
 	Parts         []string         `json:"parts,omitempty"`
 	Missing       string           `json:"missing"`
 	MissingValues []string         `json:"missing_values"`
@@ -149,7 +149,7 @@ func (p *Plan) canonical() canonPlan {
 		Predictors: canonTerms(p.Terms),
 		Covariance: p.Covariance,
 		Data: canonData{
-			File:          p.Data.File,
+			File:          optional(p.Data.File),
 			Parts:         p.Data.Parts,
 			Missing:       p.Data.Missing,
 			MissingValues: p.Data.MissingValues,
