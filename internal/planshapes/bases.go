@@ -16,13 +16,13 @@ data:
   file: d.csv
   missing: impute
   missing_values: ["", "NA", "-9"]
-  delimiter: semicolon
-  decimal: comma
+  delimiter: comma
+  decimal: point
   weights: w
-  weight_kind: sampling
+  weight_kind: frequency
   offset: off
   cluster: cl
-  imputation: {sets: 3, iterations: 2, seed: 5, column_models: {age: normal_draw, site: multinomial}, convergence_table: true}
+  imputation: {sets: 2, iterations: 1, seed: 5, column_models: {age: normal_draw, site: multinomial}, convergence_table: true}
 outcomes:
   - column: y
     categories: ["1", "2", "3", "4"]
@@ -35,10 +35,10 @@ subset:
   - {column: age, less_than: 90}
   - {column: dose, greater_than: 0}
   - {column: dose, at_most: 10}
-  - {column: site, one_of: [north, east]}
-  - {column: site, none_of: [west]}
-  - {column: treat, equal_to: drug}
-  - {column: grade, not_equal_to: "3"}
+  - {column: treat, one_of: [placebo, drug]}
+  - {column: grade, none_of: ["4"]}
+  - {column: pilot, equal_to: 1}
+  - {column: x, not_equal_to: 2}
 categorical:
   treat: {levels: [placebo, drug]}
   site: {levels: [north, east, south, west], reference: east, coding: sum, unobserved: drop}
@@ -54,21 +54,21 @@ predictors:
   - {interact: [treat, age_s]}
   - {interact: [site, grade], name: sg}
 models:
-  approaches: [cumulative, stage, adjacent]
+  approaches: [cumulative, stage]
   direction: backward
-  effects: [parallel, partial, constrained, nonparallel, stereotype]
-  links: [logit, probit, cloglog, loglog, cauchy]
+  effects: [parallel, partial, constrained, nonparallel]
+  links: [logit]
   partial:
     free: [treat, site, age_s]
     groups:
       - {name: g1, predictors: [treat, site]}
       - {name: g2, predictors: [age_s]}
-  run_every_start: true
+  run_every_start: false
 tests: {parallel_lines: [brant, lr, score, wald, wolfe_gould], alpha: 0.1}
 rules:
   - reject_unconverged: true
   - reject_negative_probabilities: true
-  - reject_if_test_rejects: {test: wald, alpha: 0.01, against: each_less_constrained, applies_to: [parallel, partial]}
+  - reject_if_test_rejects: {test: lr, alpha: 0.01, against: each_less_constrained, applies_to: [parallel, partial]}
   - reject_if_simpler_is_close: {max_difference: 0.02, grid: {age: [30, 50, 70], dose: [1]}}
   - reject_if_sparse: {per_parameter: 10, smallest_category: 5, within: site}
   - reject_if_unstable: {max_condition: 1e8, min_starts_agreeing: 2}
@@ -85,10 +85,11 @@ dictionary:
   age: {range: [0, 120], unit: years, label: Age, missing: ["-1"]}
   dose: {range: [0, 100]}
   bmi: {range: [10, 60]}
-  x: {values: [0, 1, 2, 3]}
+  x: {range: [0, 3]}
   w: {range: [0, 10]}
   off: {range: [-5, 5]}
   cl: {label: Cluster}
+  pilot: {values: [0, 1]}
   treat: {label: Treatment}
   site: {label: Site}
   grade: {label: Grade}
@@ -107,9 +108,9 @@ assumptions:
       proportions: [0.1, 0.2, 0.3, 0.4]
       effects:
         treat: {drug: 0.5}
-        age_s: {at: [20, 40, 60, 80], values: [0, 0.1, 0.2, 0.3]}
+        age_s: {at: [20, 50, 80], values: [0, 0.1, 0.3]}
         bmi.polynomial: {bmi.polynomial.1: 0.1, bmi.polynomial.2: -0.01}
-        treat&age_s: {treat&age_s.drug.1: 0.1}
+        treat&age_s: {treat.drug&age_s.1: 0.1}
       nonparallel:
         site: [{north: 0.1}, {south: 0.2}, {west: 0.3}]
     z:
@@ -120,17 +121,17 @@ deviations:
 
 // Parts and Imputed are small bases with data as parts and as imputed sets.
 const Parts = `version: 1
-data: {parts: [p1.csv, "parts/*.csv"], missing: refuse}
+data: {parts: [p1.csv, "parts/*.csv"], missing: drop}
 outcomes: [{column: y}]
 predictors: [a, b, {column: c, polynomial: {degree: 3}}]
-models: {effects: [parallel, nonparallel], partial: {select: {method: stepwise, alpha: 0.1, test: lr}}}
+models: {effects: [parallel, partial, nonparallel], partial: {select: {method: stepwise, alpha: 0.1, test: lr}}}
 rules: [{prefer_simpler: {by: aic, margin: 2}}]
 covariance: sandwich_plain
 `
 
 const Imputed = `version: 1
 data: {file: d.csv, imputed: {file: imp.csv, column: imp}, weights: w}
-outcomes: [{column: y, categories: [a, b, c]}]
+outcomes: [{column: z, categories: [low, mid, high]}]
 categorical: {g: {levels: [u, v]}}
 predictors: [g, x]
 models: {approaches: [adjacent], effects: [parallel, constrained], partial: {free: [g, x]}}
