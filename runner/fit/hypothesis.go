@@ -2,6 +2,7 @@ package fit
 
 import (
 	"fmt"
+	"math"
 	"strconv"
 	"strings"
 	"unicode"
@@ -100,7 +101,8 @@ func parseLinear(s string, index map[string]int, P int) ([]float64, float64, err
 			}
 			coef := 1.0
 			j := i
-			for j < len(s) && (unicode.IsDigit(rune(s[j])) || s[j] == '.' || s[j] == 'e' && j > i) {
+			for j < len(s) && (unicode.IsDigit(rune(s[j])) || s[j] == '.' || (s[j] == 'e' || s[j] == 'E') && j > i ||
+				(s[j] == '+' || s[j] == '-') && j > i+1 && (s[j-1] == 'e' || s[j-1] == 'E')) {
 				j++
 			}
 			if j > i {
@@ -140,6 +142,16 @@ func parseLinear(s string, index map[string]int, P int) ([]float64, float64, err
 	}
 	if expectTerm {
 		return nil, 0, fmt.Errorf("a side ends with an operator")
+	}
+	// Numbers near the largest float64 can sum past it: a restriction
+	// with an infinite coefficient has no Wald test.
+	if math.IsInf(c, 0) {
+		return nil, 0, fmt.Errorf("%q: its numbers add up beyond the largest number", s)
+	}
+	for k, v := range row {
+		if math.IsInf(v, 0) {
+			return nil, 0, fmt.Errorf("%q: the coefficients of %s add up beyond the largest number", s, sortedNames(index)[k])
+		}
 	}
 	return row, c, nil
 }

@@ -2,6 +2,7 @@ package fit
 
 import (
 	"math"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -41,6 +42,37 @@ func TestWaldLinearHypotheses(t *testing.T) {
 	} {
 		if _, err := ParseHypothesis(bad.text, par.ParamNames); err == nil || !strings.Contains(err.Error(), bad.want) {
 			t.Errorf("%q: %v", bad.text, err)
+		}
+	}
+}
+
+// Numbers with a signed exponent are read (they were cut at the sign and
+// refused as "1e"), and coefficients or constants that add up beyond the
+// largest float64 are refused rather than giving an infinite restriction
+// (found by FuzzHypothesis). Expected rows by hand.
+func TestHypothesisNumbers(t *testing.T) {
+	names := []string{"tau[1]", "a", "b"}
+	for _, c := range []struct {
+		text string
+		row  []float64
+		c    float64
+	}{
+		{"a = 1e-3", []float64{0, 1, 0}, 1e-3},
+		{"2.5E+1*a - b = -4e-1", []float64{0, 25, -1}, -0.4},
+		{"1e-2 * a + 3 = 0", []float64{0, 0.01, 0}, -3},
+	} {
+		h, err := ParseHypothesis(c.text, names)
+		if err != nil {
+			t.Errorf("%q: %v", c.text, err)
+			continue
+		}
+		if len(h.R) != 1 || !slices.Equal(h.R[0], c.row) || h.C[0] != c.c {
+			t.Errorf("%q: R %v C %v, want %v %v", c.text, h.R, h.C, c.row, c.c)
+		}
+	}
+	for _, text := range []string{"1e308*a + 1e308*a = 0", "a = 1e308 + 1e308", "a - b = 1.5e-"} {
+		if _, err := ParseHypothesis(text, names); err == nil {
+			t.Errorf("%q accepted", text)
 		}
 	}
 }
