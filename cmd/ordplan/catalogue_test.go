@@ -1115,6 +1115,13 @@ func commandLineItems(dir string) []badInput {
 			want: []string{`ordplan fit: --nonparallel: item 2 of 2 in "a, " is empty`}},
 		{id: "C5", name: "an empty constraint group", args: fitArgs(d, "--predictors", "a,b", "--constrained", "g:a;;h:b"), code: 2,
 			want: []string{`ordplan fit: --constrained: group 2 of 3 in "g:a;;h:b" is empty (nothing but spaces between two semicolons, or a semicolon at either end): remove the extra semicolon`}},
+		{id: "C6", name: "ordplan init given the data file as the plan", args: []string{"init", d}, code: 2,
+			want: []string{"ordplan init: d.csv would be the plan to write, but it is named like a data file: give the plan's name first and the data with --data: ordplan init d.yaml --data d.csv"},
+			check: func(t *testing.T, dir, out, errs string) {
+				if _, err := os.Stat(filepath.Join(dir, "d.yaml")); !os.IsNotExist(err) {
+					t.Errorf("a plan was written: %v", err)
+				}
+			}},
 		{id: "C4", name: "help on a topic that does not exist", args: []string{"help", "plans"}, code: 2,
 			want: []string{`ordplan help: no command or topic "plans" (commands: run, check, fit, init, rehearse, power, freeze, worker, schema, version; topic: plan)`}},
 	}

@@ -29,6 +29,12 @@ func cmdInit(args []string, stdout, stderr io.Writer) int {
 		return code
 	}
 	if (*dataFile == "") == (*header == "") {
+		if *dataFile == "" && isDataFileName(planPath) {
+			// `ordplan init survey.csv`: the data file given as the plan.
+			fmt.Fprintf(stderr, "ordplan init: %s would be the plan to write, but it is named like a data file: give the plan's name first and the data with --data: ordplan init %s --data %s\n",
+				planPath, strings.TrimSuffix(planPath, filepath.Ext(planPath))+".yaml", planPath)
+			return exitUsage
+		}
 		fmt.Fprintln(stderr, "ordplan init: give either --data FILE or --header \"a,b,c\"")
 		fmt.Fprintln(stderr, initUsage)
 		return exitUsage
@@ -78,6 +84,16 @@ func cmdInit(args []string, stdout, stderr io.Writer) int {
 	}
 	fmt.Fprintf(stdout, "wrote %s: edit the lines marked EDIT, then `ordplan check %s`\n", planPath, planPath)
 	return exitOK
+}
+
+// isDataFileName reports whether a name has the extension of a data file
+// the program reads (CSV or text, a workbook, Parquet).
+func isDataFileName(name string) bool {
+	switch strings.ToLower(filepath.Ext(name)) {
+	case ".csv", ".tsv", ".txt", ".xlsx", ".parquet":
+		return true
+	}
+	return false
 }
 
 // relativeTo writes file as a plan at planPath names it: relative to the
