@@ -1,6 +1,7 @@
 package main
 
 import (
+	"fmt"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -255,5 +256,38 @@ func TestInitMarkersBlockFreezing(t *testing.T) {
 	}
 	if out, errs, code := runCLI("freeze", planPath); code != 0 {
 		t.Fatalf("freeze after editing: %d %s %s", code, out, errs)
+	}
+}
+
+// A numeric column holding 1..n in the n rows of the file (a row number or
+// a numeric identifier) is described as such and left out of the
+// predictors, where it would give the order of the rows an effect; a
+// column of whole numbers that is not one per row (ages) stays a
+// predictor. Invented data: 40 rows.
+func TestInitLeavesOutRowNumbers(t *testing.T) {
+	dir := t.TempDir()
+	var b strings.Builder
+	b.WriteString("id,grade,age,dose\n")
+	for i := range 40 {
+		fmt.Fprintf(&b, "%d,%d,%d,%d.5\n", i+1, 1+i%3, 20+(i*7)%45, i%9)
+	}
+	dataPath := filepath.Join(dir, "t.csv")
+	os.WriteFile(dataPath, []byte(b.String()), 0o644)
+	planPath := filepath.Join(dir, "t.yaml")
+	if _, errs, code := runCLI("init", planPath, "--data", dataPath, "--outcome", "grade"); code != 0 {
+		t.Fatal(errs)
+	}
+	text, _ := os.ReadFile(planPath)
+	for _, want := range []string{
+		"#   id     numeric, whole numbers from 1 to 40 in 40 rows: a row number or identifier?  (not a predictor below: declare it or leave it out)",
+		"predictors: [age, dose]",
+		"# Not listed: id (empty columns, row numbers or identifiers,",
+	} {
+		if !strings.Contains(string(text), want) {
+			t.Errorf("want %q in\n%s", want, text)
+		}
+	}
+	if _, err := plan.Load(planPath); err != nil {
+		t.Fatalf("not a valid plan: %v\n%s", err, text)
 	}
 }

@@ -26,7 +26,7 @@ type Input struct {
 
 // Kind says what a column seems to be.
 type Kind struct {
-	Word      string // numeric, binary, categorical, ordered?, text, unknown
+	Word      string // numeric, binary, categorical, ordered?, identifier, text, unknown
 	Describe  string // for the comment beside the column
 	Candidate bool   // could be the ordinal outcome
 }
@@ -45,6 +45,11 @@ func KindOf(p data.Profile, haveData bool) Kind {
 		return Kind{Word: "empty", Describe: "every cell is missing" + miss}
 	case p.Numeric && p.Distinct == 2 && p.Min == 0 && p.Max == 1:
 		return Kind{Word: "binary", Describe: "numeric 0/1" + miss}
+	case p.Numeric && p.Integer && p.Many && p.Missing == 0 && p.Max-p.Min+1 == float64(p.Rows) && (p.Min == 0 || p.Min == 1):
+		// 1..n (or 0..n-1) in n rows with more than MaxValues values: a row
+		// number, not a measurement; as a predictor it would give the row
+		// order an effect.
+		return Kind{Word: "identifier", Describe: fmt.Sprintf("numeric, whole numbers from %s to %s in %d rows: a row number or identifier?", num(p.Min), num(p.Max), p.Rows)}
 	case p.Numeric && p.Integer && !p.Many && p.Distinct >= 3 && p.Distinct <= 10:
 		return Kind{Word: "ordered?", Candidate: true,
 			Describe: fmt.Sprintf("integer codes %s (%d values): ordered categories, or a count?%s", strings.Join(p.Values, ", "), p.Distinct, miss)}
@@ -205,7 +210,7 @@ func Write(in Input) ([]byte, error) {
 		w("predictors: [%s]", yamlList(preds))
 	}
 	if len(skipped) > 0 {
-		w("# Not listed: %s (empty columns, or text with too many values for a categorical predictor).", strings.Join(skipped, ", "))
+		w("# Not listed: %s (empty columns, row numbers or identifiers, or text with too many values for a categorical predictor).", strings.Join(skipped, ", "))
 	}
 	w("")
 	if len(preds) > 0 {
