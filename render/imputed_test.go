@@ -1,12 +1,16 @@
 package render
 
 import (
+	"math"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"regexp"
+	"strconv"
 	"strings"
 	"testing"
+
+	"gonum.org/v1/gonum/stat/distuv"
 
 	"ordplan/internal/testsurvey"
 )
@@ -96,9 +100,31 @@ func TestImputedReport(t *testing.T) {
 	if strings.Contains(md, "marginal effects and predictions are not computed on imputed data") {
 		t.Error("report.md still says marginal effects are not computed on imputed data")
 	}
-	pred := strings.SplitN(string(files["predictions-y.csv"]), "\n", 2)[0]
-	if !strings.HasPrefix(pred, "line,id,x1,x2,prob_c1,se_prob_c1,df_prob_c1,") || !strings.Contains(pred, ",expected,se_expected,df_expected,most_likely,") {
+	predLines := strings.Split(string(files["predictions-y.csv"]), "\n")
+	pred := predLines[0]
+	if !strings.HasPrefix(pred, "line,id,x1,x2,prob_c1,se_prob_c1,df_prob_c1,low_95_prob_c1,high_95_prob_c1,") || !strings.Contains(pred, ",expected,se_expected,df_expected,low_95_expected,high_95_expected,most_likely,") {
 		t.Errorf("predictions header: %s", pred)
+	}
+	// The interval of a pooled prediction: the estimate -/+ the t quantile
+	// on its Barnard-Rubin degrees of freedom times its standard error
+	// (Rubin 1987; the quantile from gonum's Student t, by hand here).
+	for _, line := range predLines[1:] {
+		cells := strings.Split(line, ",")
+		if len(cells) < 9 {
+			continue
+		}
+		v, _ := strconv.ParseFloat(cells[4], 64)
+		se, _ := strconv.ParseFloat(cells[5], 64)
+		q := 1.959963984540054
+		if cells[6] != "" {
+			df, _ := strconv.ParseFloat(cells[6], 64)
+			q = distuv.StudentsT{Mu: 0, Sigma: 1, Nu: df}.Quantile(0.975)
+		}
+		lo, _ := strconv.ParseFloat(cells[7], 64)
+		hi, _ := strconv.ParseFloat(cells[8], 64)
+		if math.Abs(lo-(v-q*se)) > 1e-9 || math.Abs(hi-(v+q*se)) > 1e-9 {
+			t.Errorf("pooled prediction interval [%g, %g], want %g -/+ %g * %g: %s", lo, hi, v, q, se, line)
+		}
 	}
 	me := strings.SplitN(string(files["table-marginal-effects-y.csv"]), "\n", 2)[0]
 	if !strings.HasSuffix(me, ",df,fmi") {

@@ -11,22 +11,28 @@ import (
 
 	"ordplan/render/numfmt"
 	"ordplan/runner"
+	"ordplan/runner/impute"
 )
 
 // writeHypotheses writes the Wald tests of the plan's hypotheses.
-func writeHypotheses(d *doc, or *runner.OutcomeResult) {
+func writeHypotheses(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	if len(or.Hypotheses) == 0 {
 		return
 	}
+	level, _ := confidence(r)
 	d.h(3, "Hypotheses of the plan")
-	d.p("Each hypothesis is a set of linear restrictions on parameters, tested by a Wald test in every candidate model that has the parameters it names (with that model's standard errors).")
-	adjusted := ""
+	d.p("Each hypothesis is a set of linear restrictions on parameters, tested by a Wald test in every candidate model that has the parameters it names (with that model's standard errors). A hypothesis of one restriction also has its estimate: the left side minus the right side as written (column Estimate, with its standard error and %s interval); decisions.json gives every restriction's estimate.", pct(level))
+	adjusted, pooled := "", false
 	for _, h := range or.Hypotheses {
 		if h.Adjusted != nil {
 			adjusted = map[string]string{"holm": "Holm", "benjamini_hochberg": "Benjamini-Hochberg"}[h.Adjustment]
 		}
+		pooled = pooled || h.Test.Pooled != ""
 	}
-	head := []string{"Hypothesis", "Plan line", "Model", "Chi-square", "df", "p"}
+	if pooled {
+		d.p("On imputed data an estimate is pooled by Rubin's rules, its interval from t on the Barnard-Rubin degrees of freedom.")
+	}
+	head := []string{"Hypothesis", "Plan line", "Model", "Estimate", "Std. error", pct(level) + " low", pct(level) + " high", "Chi-square", "df", "p"}
 	if adjusted != "" {
 		head = append(head, "p, "+adjusted)
 		d.p("The p-values in the chosen model are also given adjusted for multiplicity (%s) over every hypothesis of every outcome, each in its chosen model; the run notes give the size of the family.", adjusted)
@@ -37,14 +43,18 @@ func writeHypotheses(d *doc, or *runner.OutcomeResult) {
 		if model == "" {
 			model = "(none)"
 		}
-		var row []string
+		row := []string{"`" + h.Text + "`", fmt.Sprint(h.Line), model, "", "", "", ""}
+		if len(h.Contrasts) == 1 && h.Test.OK {
+			c := h.Contrasts[0]
+			row[3], row[4], row[5], row[6] = numfmt.Est(c.Estimate), numfmt.Est(c.SE), numfmt.Est(c.Low), numfmt.Est(c.High)
+		}
 		if !h.Test.OK {
-			row = []string{"`" + h.Text + "`", fmt.Sprint(h.Line), model, "", "", "not computed: " + h.Test.Reason}
+			row = append(row, "", "", "not computed: "+h.Test.Reason)
 		} else {
 			if h.Test.Pooled != "" {
-				model += " (pooled, " + h.Test.Pooled + ")"
+				row[2] += " (pooled, " + h.Test.Pooled + ")"
 			}
-			row = []string{"`" + h.Text + "`", fmt.Sprint(h.Line), model, numfmt.Stat(h.Test.Chi2), fmt.Sprint(h.Test.DF), numfmt.PValue(h.Test.P)}
+			row = append(row, numfmt.Stat(h.Test.Chi2), fmt.Sprint(h.Test.DF), numfmt.PValue(h.Test.P))
 		}
 		if adjusted != "" {
 			a := ""
@@ -59,7 +69,12 @@ func writeHypotheses(d *doc, or *runner.OutcomeResult) {
 }
 
 // writeNewRows summarizes the predictions for the plan's new rows.
-func writeNewRows(d *doc, or *runner.OutcomeResult) {
+func writeNewRows(d *doc, r *runner.Result, or *runner.OutcomeResult) {
+	level, z := confidence(r)
+	times := numfmt.Fixed(z, 3)
+	if or.NewRows != nil && or.NewRows.DF != nil {
+		times = "a t quantile on its degrees of freedom (below) times its"
+	}
 	nr := or.NewRows
 	if nr == nil {
 		return
@@ -75,10 +90,10 @@ func writeNewRows(d *doc, or *runner.OutcomeResult) {
 			neg++
 		}
 	}
-	d.p("The chosen model's predictions for the %d rows of `%s` (%d rows read, %d skipped for a missing value) are in `%s`: for each row its line in the file and the file's own columns (so a row label travels with its predictions), the category probabilities (`prob_CATEGORY`), the cumulative probabilities P(y <= m) (`cumprob_CATEGORY`), the expected category (`expected`, categories scored 1 to %d), the most likely category and the linear predictors (`linear_m`), each number with its delta-method standard error (`se_...`). Rows with a negative predicted probability: %d.",
-		nr.Rows.N, nr.File, nr.Rows.RowsRead, len(nr.Rows.Skipped), predictionsFile(or), len(or.Data.Categories), neg)
+	d.p("The chosen model's predictions for the %d rows of `%s` (%d rows read, %d skipped for a missing value) are in `%s`: for each row its line in the file and the file's own columns (so a row label travels with its predictions), the category probabilities (`prob_CATEGORY`), the cumulative probabilities P(y <= m) (`cumprob_CATEGORY`), the expected category (`expected`, categories scored 1 to %d), the most likely category and the linear predictors (`linear_m`), each number with its delta-method standard error (`se_...`) and its %s interval, the number plus and minus %s standard errors (`low_%s_...`, `high_%s_...`; for a probability near 0 or 1 such an interval can reach beyond it). Rows with a negative predicted probability: %d.",
+		nr.Rows.N, nr.File, nr.Rows.RowsRead, len(nr.Rows.Skipped), predictionsFile(or), len(or.Data.Categories), pct(level), times, lvText(level), lvText(level), neg)
 	if nr.DF != nil {
-		d.p("On imputed data each number was predicted on each of the %d imputed sets by that set's fit and pooled by Rubin's rules: the prediction is the mean over the sets, its standard error the square root of the mean squared delta-method error plus (1 + 1/%d) times the variance between the sets, and each standard error is followed by its Barnard-Rubin degrees of freedom (`df_...`, empty when the sets agree) for t-based intervals. The most likely category is that of the pooled probabilities; a row is flagged negative when a pooled probability or any set's is.",
+		d.p("On imputed data each number was predicted on each of the %d imputed sets by that set's fit and pooled by Rubin's rules: the prediction is the mean over the sets, its standard error the square root of the mean squared delta-method error plus (1 + 1/%d) times the variance between the sets, and each standard error is followed by its Barnard-Rubin degrees of freedom (`df_...`, empty when the sets agree) ; the intervals use t on them. The most likely category is that of the pooled probabilities; a row is flagged negative when a pooled probability or any set's is.",
 			or.Imputed.M, or.Imputed.M)
 	}
 }
@@ -88,6 +103,9 @@ func writeNewRows(d *doc, or *runner.OutcomeResult) {
 // '_', and then, when something was replaced, the first 8 hex digits of the
 // name's SHA-256, so that outcomes "safety.2" and "safety_2" get distinct
 // files.
+// lvText is the level as the CSV headers write it ("95", "90").
+func lvText(level float64) string { return fmt.Sprintf("%g", 100*level) }
+
 func predictionsFile(or *runner.OutcomeResult) string {
 	col := or.Outcome.Column
 	name := []rune(col)
@@ -110,7 +128,9 @@ func predictionsFile(or *runner.OutcomeResult) string {
 // identifying columns, such as a row label, travel with the predictions),
 // then the predictions. Every header name is a plain identifier (letters,
 // digits, '_'), usable without quoting.
-func predictionsCSV(or *runner.OutcomeResult) []byte {
+func predictionsCSV(r *runner.Result, or *runner.OutcomeResult) []byte {
+	level, z := confidence(r)
+	lv95 := lvText(level)
 	nr := or.NewRows
 	pr := nr.Pred
 	lv := or.Data.Categories
@@ -126,6 +146,7 @@ func predictionsCSV(or *runner.OutcomeResult) []byte {
 		if df != nil {
 			head = append(head, "df_"+name)
 		}
+		head = append(head, "low_"+lv95+"_"+name, "high_"+lv95+"_"+name)
 	}
 	for _, c := range cat {
 		pair("prob_" + c)
@@ -157,12 +178,15 @@ func predictionsCSV(or *runner.OutcomeResult) []byte {
 	f := func(x float64) string { return strconv.FormatFloat(x, 'g', 10, 64) }
 	num := func(v, se float64, dfs []float64, a int) {
 		b.WriteString("," + f(v) + "," + f(se))
+		q := z
 		if df != nil {
 			b.WriteString(",")
 			if !math.IsInf(dfs[a], 1) {
 				b.WriteString(f(dfs[a]))
 			}
+			q = impute.TQuantile(0.5+level/2, dfs[a])
 		}
+		b.WriteString("," + f(v-q*se) + "," + f(v+q*se))
 	}
 	var dProb, dCum, dExp, dLin []float64
 	if df != nil {

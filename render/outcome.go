@@ -25,17 +25,17 @@ func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	writeDecisionLog(d, or)
 	writeBoundaryEffects(d, r, or)
 	if or.Chosen == nil {
-		writeHypotheses(d, or)
+		writeHypotheses(d, r, or)
 		d.p("No model was chosen, so the report shows no estimates, predicted probabilities or marginal effects for this outcome.")
 		return
 	}
 	writeChosen(d, r, or)
 	writeOddsRatios(d, r, or)
 	writeGoodnessOfFit(d, or)
-	writeHypotheses(d, or)
+	writeHypotheses(d, r, or)
 	writePredictions(d, r, or)
 	writeMarginalEffects(d, r, or)
-	writeNewRows(d, or)
+	writeNewRows(d, r, or)
 }
 
 func writeData(d *doc, or *runner.OutcomeResult, sampling bool) {

@@ -58,7 +58,7 @@ func Outputs(r *runner.Result, dec *runner.Decisions, changes []string) (map[str
 				return nil, fmt.Errorf("outcomes %q and %q would write the same predictions file %s", prev, or.Outcome.Column, name)
 			}
 			owner[key] = or.Outcome.Column
-			files[name] = predictionsCSV(or)
+			files[name] = predictionsCSV(r, or)
 		}
 	}
 	return files, nil

@@ -577,7 +577,7 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 	runPooledFitStats(an, or)
 	runPooledGoodnessOfFit(an, or)
 	for _, h := range an.Inference.Hypotheses {
-		or.Hypotheses = append(or.Hypotheses, hypothesisTests(h, or)...)
+		or.Hypotheses = append(or.Hypotheses, hypothesisTests(h, or, an.Level)...)
 	}
 	if err := runPooledInference(an, or); err != nil {
 		return nil, err
@@ -632,6 +632,23 @@ func pinImputed(a *Analysis) ([]DataRef, func(), error) {
 }
 
 // pooledLinear is the D1 test of a linear hypothesis in a pooled fit.
+// pooledContrasts estimates each restriction of hy on the pooled fit by
+// Rubin's rules, with t intervals on the Barnard-Rubin degrees of freedom.
+func pooledContrasts(f *FitEntry, hy *fit.Hypothesis, level float64) []fit.Contrast {
+	out := make([]fit.Contrast, len(hy.R))
+	for i, row := range hy.R {
+		s := f.Pooled.Linear(row, hy.C[i])
+		q := impute.TQuantile(0.5+level/2, s.DF)
+		out[i] = fit.Contrast{Text: fit.ContrastText(row, hy.C[i], f.Result.ParamNames), Estimate: s.Estimate, SE: s.SE,
+			Low: s.Estimate - q*s.SE, High: s.Estimate + q*s.SE}
+		if !math.IsInf(s.DF, 1) {
+			df := s.DF
+			out[i].DF = &df
+		}
+	}
+	return out
+}
+
 func pooledLinear(f *FitEntry, hy *fit.Hypothesis) fit.Test {
 	var C []float64
 	for _, row := range hy.R {

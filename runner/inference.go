@@ -22,6 +22,9 @@ type HypothesisResult struct {
 	// inference.multiplicity), set for tests in the chosen model only.
 	Adjusted   *float64 `json:"adjusted_p,omitempty"`
 	Adjustment string   `json:"adjustment,omitempty"`
+	// Contrasts estimates each restriction (left side minus right side)
+	// with its interval at the report's level.
+	Contrasts []fit.Contrast `json:"contrasts,omitempty"`
 }
 
 // MarginalSet is one kind of marginal effects of the chosen model.
@@ -57,7 +60,7 @@ type NewRows struct {
 func runInference(an *Analysis, or *OutcomeResult) error {
 	inf := an.Inference
 	for _, h := range inf.Hypotheses {
-		or.Hypotheses = append(or.Hypotheses, hypothesisTests(h, or)...)
+		or.Hypotheses = append(or.Hypotheses, hypothesisTests(h, or, an.Level)...)
 	}
 	if or.Chosen == nil {
 		return nil
@@ -290,7 +293,7 @@ func weightedMean(v, w []float64) float64 {
 
 // hypothesisTests tests one hypothesis in every candidate model that has
 // the parameters it names.
-func hypothesisTests(h plan.Hypothesis, or *OutcomeResult) []HypothesisResult {
+func hypothesisTests(h plan.Hypothesis, or *OutcomeResult, level float64) []HypothesisResult {
 	var out []HypothesisResult
 	var lastErr error
 	for _, f := range or.Fits {
@@ -310,10 +313,10 @@ func hypothesisTests(h plan.Hypothesis, or *OutcomeResult) []HypothesisResult {
 			continue
 		}
 		if f.Pooled != nil {
-			out = append(out, HypothesisResult{Text: h.Text, Line: h.Line, Model: f.ID, Test: pooledLinear(f, hy)})
+			out = append(out, HypothesisResult{Text: h.Text, Line: h.Line, Model: f.ID, Test: pooledLinear(f, hy), Contrasts: pooledContrasts(f, hy, level)})
 			continue
 		}
-		out = append(out, HypothesisResult{Text: h.Text, Line: h.Line, Model: f.ID, Test: fit.WaldLinear(f.Result, hy)})
+		out = append(out, HypothesisResult{Text: h.Text, Line: h.Line, Model: f.ID, Test: fit.WaldLinear(f.Result, hy), Contrasts: fit.Contrasts(f.Result, hy, level)})
 	}
 	if len(out) == 0 {
 		reason := "no fitted model has the parameters it names"

@@ -6,6 +6,8 @@ import (
 	"strconv"
 	"strings"
 	"unicode"
+
+	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // Hypothesis is a set of linear restrictions R theta = c on a fit's
@@ -178,4 +180,69 @@ func WaldLinear(r *Result, h *Hypothesis) Test {
 		return failedTest(TestWald.String(), "%v", err)
 	}
 	return chi2Test(TestWald.String(), x, len(h.R))
+}
+
+// Contrast is one restriction r'theta = c of a hypothesis, estimated: the
+// value of r'theta - c (left side minus right side of the restriction as
+// written), its standard error sqrt(r'Vr) and its interval.
+type Contrast struct {
+	Text     string  `json:"contrast"`
+	Estimate float64 `json:"estimate"`
+	SE       float64 `json:"se"`
+	Low      float64 `json:"low"`
+	High     float64 `json:"high"`
+	// DF are the degrees of freedom of the t interval of a contrast pooled
+	// over imputed sets (nil: normal interval, or infinite).
+	DF *float64 `json:"df,omitempty"`
+}
+
+// ContrastText writes restriction row of h over the parameter names as
+// "a - b", "2*a + b - 0.5": r'theta - c.
+func ContrastText(row []float64, c float64, names []string) string {
+	var b strings.Builder
+	term := func(coef float64, what string) {
+		sign := "+"
+		if coef < 0 {
+			sign, coef = "-", -coef
+		}
+		switch {
+		case b.Len() == 0 && sign == "-":
+			b.WriteString("-")
+		case b.Len() > 0:
+			b.WriteString(" " + sign + " ")
+		}
+		if what == "" {
+			b.WriteString(strconv.FormatFloat(coef, 'g', -1, 64))
+			return
+		}
+		if coef != 1 {
+			b.WriteString(strconv.FormatFloat(coef, 'g', -1, 64) + "*")
+		}
+		b.WriteString(what)
+	}
+	for j, v := range row {
+		if v != 0 {
+			term(v, names[j])
+		}
+	}
+	if c != 0 {
+		term(-c, "")
+	}
+	return b.String()
+}
+
+// Contrasts estimates each restriction of h in fit r (its covariance),
+// with normal intervals at the given level.
+func Contrasts(r *Result, h *Hypothesis, level float64) []Contrast {
+	if !r.OK() || r.Cov == nil {
+		return nil
+	}
+	z := distuv.UnitNormal.Quantile(0.5 + level/2)
+	out := make([]Contrast, len(h.R))
+	for i, row := range h.R {
+		e := dot(row, r.Estimates) - h.C[i]
+		se := math.Sqrt(quadForm(row, r.Cov))
+		out[i] = Contrast{Text: ContrastText(row, h.C[i], r.ParamNames), Estimate: e, SE: se, Low: e - z*se, High: e + z*se}
+	}
+	return out
 }

@@ -93,6 +93,25 @@ func Pool(sets []Set, dfComplete float64) (*Pooled, error) {
 	return r, nil
 }
 
+// Linear is Rubin's rules for the linear combination r'theta - c of the
+// pooled parameters: its mean over the sets, within variance r'Wr and
+// between variance r'Br (exactly what pooling the sets' values of
+// r'theta - c gives).
+func (p *Pooled) Linear(r []float64, c float64) Scalar {
+	q, w, b := -c, 0.0, 0.0
+	for a := 0; a < p.P; a++ {
+		if r[a] == 0 {
+			continue
+		}
+		q += r[a] * p.Estimate[a]
+		for k := 0; k < p.P; k++ {
+			w += r[a] * p.Within[a*p.P+k] * r[k]
+			b += r[a] * p.Between[a*p.P+k] * r[k]
+		}
+	}
+	return scalarRules(p.M, q, w, b, p.DFComplete)
+}
+
 // Scalar is Rubin's rules for one quantity: the pooled estimate, the
 // within, between and total variance, the total standard error, the
 // relative increase in variance, lambda, the Barnard-Rubin degrees of

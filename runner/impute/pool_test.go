@@ -347,3 +347,44 @@ func TestScalarWithoutWithinVariance(t *testing.T) {
 		t.Errorf("between variance only: %+v", s)
 	}
 }
+
+// A linear combination r'theta - c of pooled parameters (a contrast of a
+// plan's hypothesis) is Rubin's rules for the sets' own values of
+// r'theta - c with their variances r'U_i r: PoolScalar on those, which
+// TestAgainstMice checks against mice's pool.scalar.
+func TestPooledLinearIsPoolScalar(t *testing.T) {
+	sets := []Set{
+		{Est: []float64{1.0, -0.5, 0.3}, Cov: []float64{0.04, 0.01, 0, 0.01, 0.09, -0.02, 0, -0.02, 0.05}},
+		{Est: []float64{1.2, -0.4, 0.1}, Cov: []float64{0.05, 0.012, 0.001, 0.012, 0.08, -0.01, 0.001, -0.01, 0.06}},
+		{Est: []float64{0.9, -0.7, 0.25}, Cov: []float64{0.045, 0.008, 0.002, 0.008, 0.1, -0.015, 0.002, -0.015, 0.055}},
+	}
+	p, err := Pool(sets, 120)
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, c := []float64{2, 0, -1}, 0.5
+	var q, u []float64
+	for _, s := range sets {
+		v := -c
+		for a := range r {
+			v += r[a] * s.Est[a]
+		}
+		w := 0.0
+		for a := range r {
+			for b := range r {
+				w += r[a] * s.Cov[a*3+b] * r[b]
+			}
+		}
+		q, u = append(q, v), append(u, w)
+	}
+	want, err := PoolScalar(q, u, 120)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got := p.Linear(r, c)
+	for _, pair := range [][3]any{{"estimate", got.Estimate, want.Estimate}, {"se", got.SE, want.SE}, {"df", got.DF, want.DF}, {"fmi", got.FMI, want.FMI}} {
+		if g, w := pair[1].(float64), pair[2].(float64); math.Abs(g-w) > 1e-12*math.Max(1, math.Abs(w)) {
+			t.Errorf("%s: %.15g, want %.15g", pair[0], g, w)
+		}
+	}
+}
