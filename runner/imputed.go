@@ -535,6 +535,9 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 	}
 	run.obs = completeObs(run.Sets[0], an.Errors.Sampling)
 	ds := *sets[0]
+	if err := an.Clusters(r, &ds); err != nil {
+		return nil, err
+	}
 	if !an.Imputes() {
 		// The original file: its missing values and observed values are
 		// described in the report.

@@ -255,6 +255,9 @@ func (a *Analysis) Load(r Reading) (*Loaded, error) {
 	if err := a.Observed(r, ds); err != nil {
 		return nil, err
 	}
+	if err := a.Clusters(r, ds); err != nil {
+		return nil, err
+	}
 	dz, d, err := buildDesign(r.Design, ds)
 	if err != nil {
 		if !a.Plan {
@@ -273,6 +276,26 @@ func (a *Analysis) Observed(r Reading, ds *data.Dataset) error {
 	}
 	return fmt.Errorf("%s: %s: category %q is declared but never observed in the %d rows used; remove it from %s or merge it with a neighbour",
 		a.Source, r.Key, ds.Unobserved[0], ds.N, r.CategoriesKey)
+}
+
+// Clusters refuses data with fewer than two clusters under clustered
+// errors, before any fit (each fit would fail alike): the one check and
+// wording.
+func (a *Analysis) Clusters(r Reading, ds *data.Dataset) error {
+	if a.Errors.Covariance != fit.Clustered || len(ds.Cluster) == 0 {
+		return nil
+	}
+	for _, c := range ds.Cluster[1:] {
+		if c != ds.Cluster[0] {
+			return nil
+		}
+	}
+	key := "--cluster"
+	if a.Plan {
+		key = "data.cluster"
+	}
+	return fmt.Errorf("%s: %s: column %q holds one cluster id (%q) in the %d rows used: cluster-robust errors need at least 2 clusters, and about 40 to be trusted; with one cluster use the sandwich for independent rows",
+		a.Source, key, r.Options.Cluster, ds.Cluster[0], ds.N)
 }
 
 // CheckDesign checks an outcome's fit input before any model is fitted

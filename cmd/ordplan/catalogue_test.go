@@ -81,7 +81,7 @@ func catalogueData(t *testing.T, dir string) {
 	rng := rand.New(rand.NewPCG(20261202, 7))
 	var base, sep, quasi, quasi0, weights strings.Builder
 	base.WriteString("y,a,b,c,d,big,tiny\n")
-	weights.WriteString("y,a,b,w0,wneg,wmiss,ws,wn\n")
+	weights.WriteString("y,a,b,w0,wneg,wmiss,ws,wn,site\n")
 	for i := 0; i < 120; i++ {
 		// a with four decimals, so that "e8" and "e-8" rescale it exactly.
 		a := float64(rng.IntN(40000)-20000) / 1e4
@@ -107,7 +107,8 @@ func catalogueData(t *testing.T, dir string) {
 			wmiss = ""
 		}
 		// ws and wn: the same sampling weights, wn scaled to sum to 0.24.
-		fmt.Fprintf(&weights, "%d,%s,%d,%s,%s,%s,%d,%g\n", y, as, b, w0, wneg, wmiss, 1+i%3, float64(1+i%3)/1000)
+		// site: one cluster id for every row.
+		fmt.Fprintf(&weights, "%d,%s,%d,%s,%s,%s,%d,%g,north\n", y, as, b, w0, wneg, wmiss, 1+i%3, float64(1+i%3)/1000)
 	}
 	// Complete separation: x orders the outcome perfectly.
 	sep.WriteString("y,x,z\n")
@@ -853,6 +854,8 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("sampling weights at two scales give other estimates:\n%s\n---\n%s", a, b)
 				}
 			}},
+		{id: "W6", name: "one cluster under clustered errors", args: fitArgs(d("w.csv"), "--predictors", "a,b", "--covariance", "clustered", "--cluster", "site"), code: 1,
+			want: []string{`w.csv: --cluster: column "site" holds one cluster id ("north") in the 120 rows used: cluster-robust errors need at least 2 clusters, and about 40 to be trusted; with one cluster use the sandwich for independent rows`}},
 		{id: "W4", name: "every weight zero", args: []string{"run"},
 			plan: edit("file: d.csv", "file: allzero.csv\n  weights: w"), code: 1,
 			want: []string{`allzero.csv: all 3 data rows were dropped for missing values or zero weight (w = 0: 3)`}},
