@@ -79,7 +79,7 @@ func writeMethods(d *doc, r *runner.Result) {
 	c := &citer{}
 	for _, or := range r.Outcomes {
 		var s []string
-		ds := or.Data
+		ds := or.AsRead()
 		sampling := r.Analysis.Errors.Sampling
 		fitted := "fitted by maximum likelihood"
 		if sampling {

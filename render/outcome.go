@@ -39,7 +39,7 @@ func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 }
 
 func writeData(d *doc, or *runner.OutcomeResult, sampling bool) {
-	ds := or.Data
+	ds := or.AsRead()
 	d.h(3, "Data")
 	d.p("Outcome column `%s`, %d categories in this order: %s. %d rows read, %d used; %s. Observations (sum of weights): %s.",
 		or.Outcome.Column, len(ds.Categories), strings.Join(ds.Categories, " < "), ds.RowsRead, ds.N, ds.DropSummary(), numfmt.Count(ds.NObs()))

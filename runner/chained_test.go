@@ -7,6 +7,7 @@ import (
 	"os"
 	"path/filepath"
 	"slices"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -197,5 +198,49 @@ func TestChainedFrequencyWeights(t *testing.T) {
 	}
 	if !strings.Contains(strings.Join(rw.Notes, "\n"), "each of the 240 rows was expanded into as many rows as its weight, 480 rows in all") {
 		t.Errorf("no note on the expansion: %q", rw.Notes)
+	}
+}
+
+// TestChainedFrequencyWeightsRowsAsRead: the rows read, used and dropped
+// that decisions.json and the report give are those of the data file,
+// not of the rows the frequency weights were expanded into for
+// imputation, and a row dropped because its weight is missing (imputation
+// does not fill weights) is counted under the weight column, not under an
+// imputed column it also misses.
+func TestChainedFrequencyWeightsRowsAsRead(t *testing.T) {
+	p := chainedFixture(t, "  imputation: {sets: 2, iterations: 1}")
+	dir := filepath.Dir(p.Data.Path)
+	b, _ := os.ReadFile(p.Data.Path)
+	lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+	weighted := []string{lines[0] + ",w"}
+	units, missingOutcome := 0, 0
+	for i, l := range lines[1:] {
+		w := strconv.Itoa(1 + i%3)
+		if i%20 == 0 {
+			// No weight, and no outcome either: y is the first column.
+			f := strings.Split(l, ",")
+			f[0] = ""
+			l, w = strings.Join(f, ","), ""
+			missingOutcome++
+		} else {
+			units += 1 + i%3
+		}
+		weighted = append(weighted, l+","+w)
+	}
+	if !strings.HasPrefix(lines[0], "y,") {
+		t.Fatalf("the fixture's first column is not y: %s", lines[0])
+	}
+	os.WriteFile(filepath.Join(dir, "weighted.csv"), []byte(strings.Join(weighted, "\n")+"\n"), 0o644)
+	src, _ := os.ReadFile(filepath.Join(dir, "p.yaml"))
+	path := filepath.Join(dir, "w.yaml")
+	os.WriteFile(path, []byte(strings.Replace(string(src), "  file: d.csv\n", "  file: weighted.csv\n  weights: w\n", 1)), 0o644)
+	res := runPlan(t, loadPlanFile(t, path), 2)
+	od := BuildDecisions(res).Outcomes[0]
+	read := len(lines) - 1
+	if od.RowsRead != read || od.RowsUsed != read-missingOutcome || od.NObs != float64(units) {
+		t.Errorf("rows read %d, used %d, observations %v; want %d, %d, %d", od.RowsRead, od.RowsUsed, od.NObs, read, read-missingOutcome, units)
+	}
+	if len(od.Dropped) != 1 || od.Dropped[0].Column != "w" || od.Dropped[0].Rows != missingOutcome {
+		t.Errorf("dropped %+v, want %d rows under w", od.Dropped, missingOutcome)
 	}
 }

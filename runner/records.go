@@ -195,7 +195,7 @@ func BuildDecisions(r *Result) *Decisions {
 		Notes:   nonNil(r.Notes), Registration: registrationRecord(r.Registration), Simulated: r.Simulated}
 	for _, or := range r.Outcomes {
 		od := OutcomeDecisions{Outcome: or.Outcome.Column, Categories: or.Data.Categories, Counts: or.Data.Counts,
-			RowsRead: or.Data.RowsRead, RowsUsed: or.Data.N, Dropped: nonNilDrops(or.Data.Dropped), NObs: or.Data.NObs(),
+			RowsRead: or.AsRead().RowsRead, RowsUsed: or.AsRead().N, Dropped: nonNilDrops(or.AsRead().Dropped), NObs: or.AsRead().NObs(),
 			Choice: or.Choice, Fallback: or.Fallback, Notes: nonNil(or.Notes), Final: map[string]Verdict{}}
 		if or.Observed != nil {
 			od.Counts = or.Observed.Counts

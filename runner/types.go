@@ -83,6 +83,17 @@ type OutcomeResult struct {
 	Observed *data.Dataset `json:"-"`
 }
 
+// AsRead is the data as read from the plan's data file: on imputed data
+// the original file (Observed: its rows read, used and dropped, whatever
+// the imputed sets hold: a stacked file's other sets, frequency weights
+// expanded into one row per unit), else Data.
+func (or *OutcomeResult) AsRead() *data.Dataset {
+	if or.Observed != nil {
+		return or.Observed
+	}
+	return or.Data
+}
+
 // FreeSet is the set of terms allowed to vary in partial and
 // constrained models of one approach, and where it came from.
 type FreeSet struct {

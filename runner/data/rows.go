@@ -77,6 +77,12 @@ func (r *reader) settle(t *rowTally, d *Dataset, row cells) {
 		}
 		r.keepRow(t, d, row)
 	case row.miss >= 0:
+		if r.opt.KeepIncomplete {
+			// Dropped for a column imputation does not fill (weights,
+			// offset, cluster): counted under that column, not under
+			// an imputed one it may miss before it.
+			row.miss = r.unimputed(t)
+		}
 		t.countIncomplete(row)
 	case row.w == 0:
 		t.zeroWeight++
@@ -298,15 +304,18 @@ func (t *rowTally) intern(s string) string {
 // keepsIncomplete reports whether the current row, which has a missing
 // value, is kept for imputation: only its outcome or predictors miss.
 func (r *reader) keepsIncomplete(t *rowTally) bool {
-	if !r.opt.KeepIncomplete {
-		return false
-	}
+	return r.opt.KeepIncomplete && r.unimputed(t) < 0
+}
+
+// unimputed is the first used column the current row misses that
+// imputation does not fill (neither the outcome nor a predictor), or -1.
+func (r *reader) unimputed(t *rowTally) int {
 	for ci, c := range r.cols {
 		if t.pat[ci] == 'x' && c.role != roleOutcome && c.role != rolePredictor {
-			return false
+			return ci
 		}
 	}
-	return true
+	return -1
 }
 
 // countIncomplete counts a row with a missing value: under its first
