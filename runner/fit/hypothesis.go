@@ -3,6 +3,7 @@ package fit
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 	"unicode"
@@ -61,8 +62,15 @@ func ParseHypothesis(text string, names []string) (*Hypothesis, error) {
 			if !nonzero {
 				return nil, fmt.Errorf("hypothesis %q: %q restricts no parameter", text, part)
 			}
+			// Each side is finite, but their difference can pass the
+			// largest number ("b + 1e308 = -1e308"): such a restriction
+			// has no Wald test.
+			c := consts[i+1] - consts[i]
+			if math.IsInf(c, 0) || slices.ContainsFunc(row, func(v float64) bool { return math.IsInf(v, 0) }) {
+				return nil, fmt.Errorf("hypothesis %q: in %q the numbers of the two sides differ by more than the largest number", text, part)
+			}
 			h.R = append(h.R, row)
-			h.C = append(h.C, consts[i+1]-consts[i])
+			h.C = append(h.C, c)
 		}
 	}
 	if len(h.R) == 0 {

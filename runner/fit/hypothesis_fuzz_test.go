@@ -13,7 +13,7 @@ func FuzzHypothesis(f *testing.F) {
 	names := []string{"tau[1]", "tau[2]", "tau[3]", "a", "b[1]", "b[2]", "b[3]", "site.east", "pilot&street_type.cul_de_sac", "phi[1]"}
 	for _, s := range []string{"a = 0", "b[1] = b[2] = b[3]", "2*a - b[3] = 0.5; site.east = 0", "tau[1] = -tau[3]",
 		"a + a - 2*a = 0", "1e308*a + 1e308*a = 0", "a = 1e-3", ".5a = 1", "a*b = 0", "= =", ";;", "a = 0; ", "-(a) = 0",
-		"pilot&street_type.cul_de_sac = phi[1]", "3 = 3", "a = a = a", "1.5e3 * a + 2 = b[1]"} {
+		"pilot&street_type.cul_de_sac = phi[1]", "3 = 3", "a = a = a", "1.5e3 * a + 2 = b[1]", "b[1] + 1e308 = -1e308", "1e308*a = -1e308*a"} {
 		f.Add(s)
 	}
 	f.Fuzz(func(t *testing.T, s string) {

@@ -70,7 +70,8 @@ func TestHypothesisNumbers(t *testing.T) {
 			t.Errorf("%q: R %v C %v, want %v %v", c.text, h.R, h.C, c.row, c.c)
 		}
 	}
-	for _, text := range []string{"1e308*a + 1e308*a = 0", "a = 1e308 + 1e308", "a - b = 1.5e-"} {
+	for _, text := range []string{"1e308*a + 1e308*a = 0", "a = 1e308 + 1e308", "a - b = 1.5e-",
+		"b + 1e308 = -1e308", "1e308*a = -1e308*a"} {
 		if _, err := ParseHypothesis(text, names); err == nil {
 			t.Errorf("%q accepted", text)
 		}
