@@ -21,7 +21,11 @@ func writeOverallFit(d *doc, or *runner.OutcomeResult) {
 		return
 	}
 	d.h(3, "Overall fit")
-	d.p("Each candidate against the model with thresholds only (no predictor) of the same approach and link: the likelihood-ratio test that every slope is zero, and pseudo-R² measures. McFadden: 1 − LL/LL₀; Cox-Snell: 1 − exp(2(LL₀ − LL)/N); Nagelkerke: Cox-Snell divided by its largest value 1 − exp(2 LL₀/N); McKelvey-Zavoina (cumulative models with parallel effects): the share of the latent variable's variance explained, var(x'b)/(var(x'b) + var(e)). None of them is the share of variance explained in the usual sense; compare them between models of the same data only. Sources are listed in the documentation of the models.")
+	lr := "the likelihood-ratio test that every slope is zero"
+	if !slices.ContainsFunc(or.Overall, func(o runner.OverallRecord) bool { return o.LR.OK }) {
+		lr = "the likelihood-ratio statistic of every slope being zero (not a test here: see below the table)"
+	}
+	d.p("Each candidate against the model with thresholds only (no predictor) of the same approach and link: %s, and pseudo-R² measures. McFadden: 1 − LL/LL₀; Cox-Snell: 1 − exp(2(LL₀ − LL)/N); Nagelkerke: Cox-Snell divided by its largest value 1 − exp(2 LL₀/N); McKelvey-Zavoina (cumulative models with parallel effects): the share of the latent variable's variance explained, var(x'b)/(var(x'b) + var(e)). None of them is the share of variance explained in the usual sense; compare them between models of the same data only. Sources are listed in the documentation of the models.", lr)
 	pooled := false
 	for _, o := range or.Overall {
 		pooled = pooled || o.LR.OK && o.LR.Pooled != ""

@@ -244,7 +244,7 @@ func multiplicitySentence(r *runner.Result) string {
 	if outcomes > 1 {
 		of = fmt.Sprintf("the chosen models of %d outcomes", outcomes)
 	}
-	return fmt.Sprintf("The plan's hypotheses make %d tests in %s, whose p-values are not adjusted for multiplicity (inference.multiplicity: none): each test holds its level on its own, and the chance that at least one rejects although none of the hypotheses is false is larger than that level (holm or benjamini_hochberg would adjust them). The other tests of this report (parallel lines, overall fit, goodness of fit) are not adjusted either.", tests, of)
+	return fmt.Sprintf("The plan's hypotheses make %d tests in %s, whose p-values are not adjusted for multiplicity (inference.multiplicity: none): each test holds its level on its own, and the chance that at least one rejects although none of the hypotheses is false can be larger than that level, up to %d times it (holm or benjamini_hochberg would adjust them). The other tests of this report (parallel lines, overall fit, goodness of fit) are not adjusted either.", tests, of, tests)
 }
 
 // startsSentence says how the searches from several starts were run:

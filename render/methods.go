@@ -137,8 +137,12 @@ func writeMethods(d *doc, r *runner.Result) {
 				effects = append(effects, "the one-dimensional stereotype model "+c.cite("anderson"))
 			}
 		}
-		s = append(s, fmt.Sprintf("The candidate models, fixed in an analysis plan before fitting (plan SHA-256 %s%s), crossed %s with %s, using the %s link%s.",
-			short(p.Hash), registeredAs(r), joinAnd(comps), joinAnd(effects), joinAnd(wordList(p.Models.Links)), plural(len(p.Models.Links))))
+		fixed := "fixed in an analysis plan before fitting"
+		if st := r.Registration; st != nil && (st.State == lock.StateNone || st.Lock == nil) {
+			fixed = "set out in an analysis plan"
+		}
+		s = append(s, fmt.Sprintf("The candidate models, %s (plan SHA-256 %s%s), crossed %s with %s, using the %s link%s.",
+			fixed, short(p.Hash), registeredAs(r), joinAnd(comps), joinAnd(effects), joinAnd(wordList(p.Models.Links)), plural(len(p.Models.Links))))
 		if sel := p.Models.Partial.Select; sel != nil {
 			s = append(s, fmt.Sprintf("The predictors allowed non-parallel effects were selected by backward stepwise imposition of parallel constraints with %s tests at alpha = %g %s.", sel.Test.Title(), sel.Alpha, c.cite("williams")))
 		}
@@ -232,7 +236,7 @@ func registeredAs(r *runner.Result) string {
 		return ""
 	}
 	if st.State == lock.StateNone || st.Lock == nil {
-		return "; the plan was not frozen in a lock file, so the report cannot show when it was fixed"
+		return "; the plan was not frozen in a lock file, so the report cannot show when it was written"
 	}
 	s := fmt.Sprintf("; frozen on %s", st.Lock.FrozenAt)
 	if st.Lock.Registration != "" {

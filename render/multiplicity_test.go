@@ -50,6 +50,9 @@ inference: {hypotheses: ["g = 0"], multiplicity: ` + multiplicity + `}
 		if got := strings.Contains(limits, sentence); got != tc.want {
 			t.Errorf("outcomes %s, multiplicity %s: sentence present %v, want %v:\n%s", tc.outcomes, tc.multiplicity, got, tc.want, limits)
 		}
+		if tc.want && !strings.Contains(limits, "can be larger than that level, up to 2 times it") {
+			t.Errorf("outcomes %s: the sentence does not bound the chance of a false rejection by the number of tests", tc.outcomes)
+		}
 		if !tc.want && strings.Contains(limits, "not adjusted for multiplicity") {
 			t.Errorf("outcomes %s, multiplicity %s: says the p-values are not adjusted", tc.outcomes, tc.multiplicity)
 		}

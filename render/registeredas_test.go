@@ -19,7 +19,7 @@ func TestMethodsNameTheRegistration(t *testing.T) {
 		want string
 	}{
 		{nil, ""},
-		{&lock.Status{State: lock.StateNone, LockFile: "p.lock.json"}, "; the plan was not frozen in a lock file, so the report cannot show when it was fixed"},
+		{&lock.Status{State: lock.StateNone, LockFile: "p.lock.json"}, "; the plan was not frozen in a lock file, so the report cannot show when it was written"},
 		{&lock.Status{State: lock.StateMatches, Lock: f}, "; frozen on 2026-01-02T03:04:05Z, registration REG-7, canonical SHA-256 0123456789ab"},
 		{&lock.Status{State: lock.StateDeviations, Lock: f, Changes: []lock.Explained{{Change: lock.Change{Path: "seed"}, Reason: "why"}}},
 			"; frozen on 2026-01-02T03:04:05Z, registration REG-7, canonical SHA-256 0123456789ab; the plan run departs from the frozen one in 1 key(s), each with a stated reason listed at the head of the report"},

@@ -98,6 +98,9 @@ rules:
 	if !strings.Contains(md, "| not a test |") {
 		t.Fatal("the overall-fit table no longer shows the likelihood-ratio statistics as not tests; the test is out of date")
 	}
+	if strings.Contains(md, "the likelihood-ratio test that every slope is zero") || !strings.Contains(md, "the likelihood-ratio statistic of every slope being zero (not a test here") {
+		t.Error("the overall-fit paragraph calls the statistic beside a table of 'not a test' a likelihood-ratio test")
+	}
 	for _, bad := range []string{"pooled by D3", "pooled by the D3", "pooled by D2", "by the D2 rule", "by a likelihood-ratio test", "checked with the Lipsitz test"} {
 		if strings.Contains(md, bad) {
 			t.Errorf("report.md says %q under sampling weights, where no likelihood-ratio or goodness-of-fit statistic is a test", bad)

@@ -114,10 +114,13 @@ func chosenChanges(outcome, id string, p, o OutcomeDecisions) []string {
 		if !ok {
 			continue
 		}
-		d := math.Abs(of.Estimates[name] - e)
-		if se := pf.StdErrors[name]; se > 0 {
-			d /= se
+		// Moves are counted in the earlier run's standard errors; a
+		// parameter without a positive one has no such scale.
+		se := pf.StdErrors[name]
+		if !(se > 0) || math.IsInf(se, 0) {
+			continue
 		}
+		d := math.Abs(of.Estimates[name]-e) / se
 		if d > worst {
 			worst, at = d, name
 		}

@@ -122,3 +122,20 @@ inference: {hypotheses: ["g = 0"]}
 		t.Errorf("the same decisions: %q", same)
 	}
 }
+
+// A parameter without a positive standard error in the earlier run (a
+// fixed or aliased one) has no scale to count its move in: it is left out
+// rather than reported as a raw difference in "standard errors". Expected
+// by hand: b moved 0.3 with se 0.1, i.e. 3 standard errors; c moved 50 with
+// se 0.
+func TestChosenChangesSkipsParametersWithoutScale(t *testing.T) {
+	ll0, ll1 := -100.0, -99.0
+	mk := func(b, c float64, ll *float64) OutcomeDecisions {
+		return OutcomeDecisions{Fits: []FitDecision{{ID: "m", FitRecord: FitRecord{LogLik: ll,
+			Estimates: map[string]float64{"b": b, "c": c}, StdErrors: map[string]float64{"b": 0.1, "c": 0}}}}}
+	}
+	lines := chosenChanges("y", "m", mk(1, 0, &ll0), mk(1.3, 50, &ll1))
+	if len(lines) != 1 || !strings.Contains(lines[0], "at most 3.000 standard errors") || !strings.Contains(lines[0], "the most b ") {
+		t.Errorf("got %q", lines)
+	}
+}
