@@ -63,6 +63,16 @@ func TestChooseAndTieBreak(t *testing.T) {
 			chosen: "first", reason: "this one has the fewest parameters (as 1 other(s) have) and the same BIC, and comes first in the plan's grid",
 		},
 		{
+			// Equal to rounding is 1e-8 relative (2e-6 at 200): "first" is
+			// within it of "second", "second" of "third", but "first" not of
+			// "third", the smallest; "second" is the first in grid order of
+			// those equal to the smallest.
+			name: "near ties in a chain: the smallest decides, then grid order", by: "bic", margin: 2,
+			fits:   []*FitEntry{candidate("first", ok, 0, 200+2.4e-6, 6), candidate("second", ok, 0, 200+1.2e-6, 6), candidate("third", ok, 0, 200, 6)},
+			chosen: "second", reason: "this one has the fewest parameters (as 2 other(s) have) and the same BIC, and comes first in the plan's grid",
+			others: map[string]string{"first": "within the margin (BIC 200.000, +0.000) but 6 parameters like second, whose BIC is smaller", "third": "within the margin (BIC 200.000, +0.000) but 6 parameters and the same BIC as second, which comes first in the plan's grid"},
+		},
+		{
 			name: "a fit without a criterion is set aside", by: "aic",
 			fits:   []*FitEntry{candidate("sep", nofin, 50, 50, 3), candidate("neg", neg, 120, 0, 6), candidate("fine", ok, 125, 0, 5)},
 			chosen: "neg", reason: "chosen: AIC 120.000",

@@ -888,14 +888,29 @@ func (env *ruleEnv) choose(r plan.Rule, alive []*FitEntry, ro *RuleOutcome) {
 			tied = append(tied, f)
 		}
 	}
-	sort.SliceStable(tied, func(i, j int) bool {
-		a, b := tied[i].Result, tied[j].Result
-		if a.NParams != b.NParams {
-			return a.NParams < b.NParams
+	// Of the tied models with the fewest parameters, the one with the
+	// smallest criterion; criteria within tol of that one count as equal
+	// and the first in grid order is taken (a choice made in two steps, as
+	// a comparison within tol is not transitive and cannot order a sort).
+	fewest := tied[0].Result.NParams
+	for _, f := range tied {
+		fewest = min(fewest, f.Result.NParams)
+	}
+	least := math.Inf(1)
+	for _, f := range tied {
+		if f.Result.NParams == fewest {
+			least = math.Min(least, crit(f))
 		}
-		return crit(tied[i]) < crit(tied[j])-tol
-	})
-	chosen := tied[0]
+	}
+	var chosen *FitEntry
+	for _, f := range tied {
+		if f.Result.NParams == fewest && crit(f) <= least+tol {
+			chosen = f
+			break
+		}
+	}
+	// The chosen model first, the others in grid order.
+	tied = append([]*FitEntry{chosen}, slices.DeleteFunc(slices.Clone(tied), func(f *FitEntry) bool { return f == chosen })...)
 	for _, f := range usable {
 		c := crit(f)
 		v := Verdict{Model: f.ID, Numbers: map[string]float64{r.By: c, numberKey("smallest " + r.By): best, "margin": r.Margin, "parameters": float64(f.Result.NParams)}}
@@ -932,7 +947,7 @@ func (env *ruleEnv) choose(r plan.Rule, alive []*FitEntry, ro *RuleOutcome) {
 			switch k, kc := f.Result.NParams, chosen.Result.NParams; {
 			case k > kc:
 				v.Reason += fmt.Sprintf("%d parameters, more than %d", k, kc)
-			case c > crit(chosen)+tol:
+			case c > least+tol:
 				v.Reason += fmt.Sprintf("%d parameters like %s, whose %s is smaller", k, chosen.ID, by)
 			default:
 				v.Reason += fmt.Sprintf("%d parameters and the same %s as %s, which comes first in the plan's grid", k, by, chosen.ID)
