@@ -6,7 +6,7 @@ import (
 )
 
 // Rich is a base plan with the keys the example plans leave out: weights,
-// offset, clusters, imputation, every subset comparison, every rule kind,
+// offset, clusters, every subset comparison, every rule kind,
 // constraint groups, stepwise selection, a dictionary, assumptions with
 // splines and nonparallel effects, deviations.
 const Rich = `version: 1
@@ -14,7 +14,7 @@ title: every key
 seed: 7
 data:
   file: d.csv
-  missing: impute
+  missing: drop
   missing_values: ["", "NA", "-9"]
   delimiter: comma
   decimal: point
@@ -22,7 +22,6 @@ data:
   weight_kind: frequency
   offset: off
   cluster: cl
-  imputation: {sets: 2, iterations: 1, seed: 5, column_models: {age: normal_draw, site: multinomial}, convergence_table: true}
 outcomes:
   - column: y
     categories: ["1", "2", "3", "4"]
@@ -56,7 +55,7 @@ predictors:
 models:
   approaches: [cumulative, stage]
   direction: backward
-  effects: [parallel, partial, constrained, nonparallel]
+  effects: [parallel, constrained]
   links: [logit]
   partial:
     free: [treat, site, age_s]
@@ -119,7 +118,8 @@ deviations:
   - {key: "rules[3]", reason: a reason}
 `
 
-// Parts and Imputed are small bases with data as parts and as imputed sets.
+// Parts, Imputed and Chained are small bases with data as parts, as
+// imputed sets, and imputed by the program.
 const Parts = `version: 1
 data: {parts: [p1.csv, "parts/*.csv"], missing: drop}
 outcomes: [{column: y}]
@@ -139,10 +139,23 @@ rules: [{reject_if_test_rejects: true}, {choose: true}]
 inference: {hypotheses: ["g.v = 0"], marginal_effects: [profile], profile: {g: v, x: 1}}
 `
 
+const Chained = `version: 1
+data:
+  file: d.csv
+  missing: impute
+  imputation: {sets: 2, iterations: 1, seed: 5, column_models: {age: normal_draw, site: multinomial}, convergence_table: true}
+outcomes: [{column: safety, categories: [very_unsafe, unsafe, neutral, safe, very_safe]}]
+categorical: {site: {levels: [north, east, south, west]}}
+predictors: [site, {column: age, centre: mean}, a]
+models: {approaches: [cumulative], effects: [parallel, partial], partial: {free: [a]}}
+rules: [{reject_if_sparse: {per_parameter: 5}}, {choose: {by: aic}}]
+inference: {hypotheses: ["site = 0"], marginal_effects: [average, means]}
+`
+
 // Bases are the base plans: the project's example plans (read from root,
 // the module's folder) and the ones above.
 func Bases(root string) [][]byte {
-	out := [][]byte{[]byte(Rich), []byte(Parts), []byte(Imputed)}
+	out := [][]byte{[]byte(Rich), []byte(Parts), []byte(Imputed), []byte(Chained)}
 	for _, name := range []string{"example.yaml", "kneepain.yaml"} {
 		if b, err := os.ReadFile(filepath.Join(root, "plans", name)); err == nil {
 			out = append(out, b)
