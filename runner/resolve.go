@@ -349,11 +349,11 @@ func (a *Analysis) Partitioned() error {
 	r := a.Outcomes[0]
 	switch {
 	case a.Errors.Sampling || r.Options.Cluster != "":
-		return errors.New("partitioned fits take frequency weights only, without clusters")
+		return errors.New("a fit over parts held by workers takes frequency weights only and no clusters: sampling weights and clusters need sandwich errors, which need every row's score in one place")
 	case a.Errors.Covariance != fit.Observed:
-		return errors.New("partitioned fits give observed-information standard errors only")
+		return fmt.Errorf("a fit over parts held by workers gives observed-information standard errors only, not %s", a.Errors.Covariance)
 	case !plainColumns(r.Design):
-		return errors.New("partitioned fits read numeric columns as they are: categorical columns, transformations and interactions need the whole data in one place (their constants come from all rows)")
+		return errors.New("a fit over parts held by workers reads numeric columns as they are: categorical columns, transformations and interactions need the whole data in one place (their constants come from all rows)")
 	}
 	return nil
 }

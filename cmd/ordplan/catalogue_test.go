@@ -952,6 +952,14 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{"flag provided but not defined: -partitions", "Run 'ordplan fit --help' for its flags, each with an example."}},
 		{id: "Q8", name: "ordplan fit --queue without --parts", args: fitArgs(d("d.csv"), "--predictors", "a", "--queue", "nats://127.0.0.1:1"), code: 2,
 			want: []string{"ordplan fit: --queue needs --parts a.csv,b.csv,... (the files the workers hold and sum the fit over)"}},
+		{id: "Q10", name: "ordplan fit --parts --queue with what a fit over parts cannot do", args: []string{"fit", "--parts", d("w.csv") + "," + d("d.csv"), "--outcome", "y", "--predictors", "a,b", "--weights", "ws", "--weight-kind", "sampling", "--queue", "nats://127.0.0.1:1"}, code: 2,
+			want: []string{"ordplan fit: --queue: a fit over parts held by workers takes frequency weights only and no clusters: sampling weights and clusters need sandwich errors, which need every row's score in one place; without --queue, --parts reads the parts here as one data set and fits them with every option"},
+			check: func(t *testing.T, dir, out, errs string) {
+				_, e, code := runCLI("fit", "--parts", filepath.Join(dir, "w.csv")+","+filepath.Join(dir, "d.csv"), "--outcome", "y", "--predictors", "a,b", "--covariance", "expected", "--queue", "nats://127.0.0.1:1")
+				if code != 2 || !strings.Contains(e, "ordplan fit: --queue: a fit over parts held by workers gives observed-information standard errors only, not expected;") {
+					t.Errorf("--covariance expected: exit %d: %s", code, e)
+				}
+			}},
 		{id: "Q9", name: "ordplan fit with --data and --parts", args: fitArgs(d("d.csv"), "--predictors", "a", "--parts", "p1.csv,p2.csv"), code: 2,
 			want: []string{"ordplan fit: give --data (one file) or --parts (the data as several files), not both"}},
 		{id: "Q3", name: "secret file too short", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-secret-file", d("short.key")}, code: 1,

@@ -21,7 +21,8 @@ func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, std
 		return fail(stderr, err)
 	}
 	if err := a.Partitioned(); err != nil {
-		return fail(stderr, err)
+		fmt.Fprintf(stderr, "ordplan fit: --queue: %v; without --queue, --parts reads the parts here as one data set and fits them with every option\n", err)
+		return exitUsage
 	}
 	m, err := s.Model()
 	if err != nil {
