@@ -98,6 +98,7 @@ func TestAgainstR(t *testing.T) {
 	t.Run("stage models", testRStage)
 	t.Run("multinomial logit", testRMultinomial)
 	t.Run("Pulkstenis-Robinson", testRPatternSplit)
+	t.Run("predictor far from zero", testRFarFromZero)
 }
 
 // ---- comparisons of numbers
@@ -427,6 +428,70 @@ func testRTwoCategories(t *testing.T) {
 			}
 		}
 	}
+}
+
+// testRFarFromZero: a predictor near 1e6 with a spread of about 1 (the
+// fit centres it, centre.go), for every comparison and link, against the
+// binary glm (farzero.R: on the column less 1e6, mapped back by the exact
+// identity of the linear predictor; for the logit also on the column as it
+// is): log-likelihood, estimates in the data's units, observed- and
+// expected-information errors. Without centring the fit reported no finite
+// maximum there.
+func testRFarFromZero(t *testing.T) {
+	a := newAgreement(t)
+	defer a.report()
+	dir := workDir(t)
+	names, cols := simFarFromZero()
+	rscript.WriteCSV(t, filepath.Join(dir, "far.csv"), names, cols)
+	vals := rscript.Run(t, dir, rfile("common.R"), rfile("farzero.R"))
+	far := rscript.ReadCSV(t, filepath.Join(dir, "far.csv"))
+	d := dataFrom(t, far, "y", 1, 2, []string{"x1", "x2"}, "")
+	for _, l := range rLinks {
+		prefix := "far." + l.name
+		theta := vals.Get(t, prefix+".theta")
+		seObs := vals.Get(t, prefix+".se_obs")
+		for _, c := range comparisons {
+			label := fmt.Sprintf("far %s %s (glm, binomial(%s))", c.name, l.name, l.name)
+			m := parallelModel(c.cmp, c.backward, l.link, len(d.Predictors), fit.Parallel)
+			r := mustFit(t, label, d, m, fit.Options{})
+			a.logLik(label, r.LogLik, vals.Scalar(t, prefix+".ll"))
+			a.est(label, r.ParamNames, r.Estimates, theta, seObs, tolEst)
+			a.errors(label+" observed-information errors", r.ParamNames, r.StdErrors, seObs, tolEst)
+			re := mustFit(t, label, d, m, fit.Options{Covariance: fit.Expected})
+			a.errors(label+" expected-information errors (glm's)", r.ParamNames, re.StdErrors, vals.Get(t, prefix+".se_glm"), tolEst)
+			if l.link == fit.Logit {
+				label += " on x1 as it is"
+				a.logLik(label, r.LogLik, vals.Scalar(t, "far.raw_logit.ll"))
+				a.est(label, r.ParamNames, r.Estimates, vals.Get(t, "far.raw_logit.theta"), seObs, tolEst)
+				a.errors(label+" errors (glm's)", r.ParamNames, r.StdErrors, vals.Get(t, "far.raw_logit.se_glm"), tolEst)
+			}
+		}
+	}
+}
+
+// simFarFromZero is seeded data of our own: 400 rows, x1 = 1e6 + N(0,1)
+// (three decimals), x2 ~ Bernoulli(0.4), y = 2 when
+// (x1 - 1e6) - 0.5 x2 + logistic noise > 0.3.
+func simFarFromZero() (names []string, cols [][]float64) {
+	rng := rand.New(rand.NewPCG(20261203, 3))
+	const n = 400
+	cols = make([][]float64, 3)
+	for i := 0; i < n; i++ {
+		z := round(rng.NormFloat64(), 3)
+		x2 := 0.0
+		if rng.Float64() < 0.4 {
+			x2 = 1
+		}
+		p := rng.Float64()
+		y := 1.0
+		if z-0.5*x2+math.Log(p/(1-p)) > 0.3 {
+			y = 2
+		}
+		for j, v := range []float64{y, 1e6 + z, x2} {
+			cols[j] = append(cols[j], v)
+		}
+	}
+	return []string{"y", "x1", "x2"}, cols
 }
 
 // testRFrequencyWeights: frequency weights equal duplicated rows, in R

@@ -244,7 +244,9 @@ func fitFromWith(d *Data, m Model, opt Options, base *rankSums, first *firstSums
 	if err := d.validateRows(true); err != nil {
 		return nil, err
 	}
-	return fitValid(d, m, opt, &shared{base: base, first: first})
+	sh := &shared{base: base, first: first}
+	cd, c := sh.centred(d, opt.Workers)
+	return sh.fitOuter(d, cd, c, m, opt, nil)
 }
 
 // fitValid is Fit on data that passed validate; sh holds what the fits

@@ -14,6 +14,7 @@ import (
 type shared struct {
 	rankOnce sync.Once
 	rankSD   []float64
+	rankMean []float64
 	rankErr  error
 	// base: sums of an earlier rank check of the same rows, which the
 	// check takes X's sums from (LipsitzTest); sums: this check's.
@@ -39,8 +40,44 @@ type gridFit struct {
 
 // rank is d.checkRank, made once (it does not depend on the model).
 func (sh *shared) rank(d *Data, workers int) ([]float64, error) {
-	sh.rankOnce.Do(func() { sh.rankSD, sh.sums, sh.rankErr = d.checkRankWith(workers, sh.base) })
+	sh.rankOnce.Do(func() { sh.rankSD, sh.rankMean, sh.sums, sh.rankErr = d.checkRankMean(workers, sh.base) })
 	return sh.rankSD, sh.rankErr
+}
+
+// centred is the data the fits of d run on: d itself, or d with the
+// predictors far from zero centred (c, nil when none; see centreAbove),
+// from the rank check made here (which the fits then share; on data it
+// refuses, d, for the fits to report its error).
+func (sh *shared) centred(d *Data, workers int) (*Data, *centring) {
+	if _, err := sh.rank(d, workers); err != nil {
+		return d, nil
+	}
+	c := centringOf(d, sh.rankMean, sh.rankSD)
+	if c == nil {
+		return d, nil
+	}
+	return c.data(d), c
+}
+
+// fitOuter is fitValid for a caller outside the fits of one data set,
+// with starts and results in the data's units: on data centred by c
+// (cd, see centred) the start is moved into centred coordinates and the
+// result back; the fits inside (auxiliary fits, the starts a constrained
+// model builds from them) stay in centred coordinates. keep, when not
+// nil, is given the result as the fit made it (FitGrid's copies for the
+// fits that build on it).
+func (sh *shared) fitOuter(d, cd *Data, c *centring, m Model, opt Options, keep func(*Result, error)) (*Result, error) {
+	if c != nil && opt.Start != nil {
+		opt.Start = c.start(m, d.J, d.Predictors, opt.Start)
+	}
+	res, err := fitValid(cd, m, opt, sh)
+	if keep != nil {
+		keep(res, err)
+	}
+	if c != nil {
+		c.restore(res)
+	}
+	return res, err
 }
 
 // design is d's compressed design, made once.
@@ -134,6 +171,7 @@ func FitGrid(d *Data, models []Model, opt Options, workers int, done func(i int,
 		return
 	}
 	sh := &shared{fitted: map[string]gridFit{}}
+	cd, c := sh.centred(d, opt.Workers)
 	deps := gridDeps(d, models, opt)
 	order := gridOrder(d, models, deps)
 	// waiting[i]: the fits i still waits for; later[j]: the fits waiting for j.
@@ -177,10 +215,11 @@ func FitGrid(d *Data, models []Model, opt Options, workers int, done func(i int,
 		go func() {
 			defer wg.Done()
 			for i := next(); i >= 0; i = next() {
-				res, err := fitValid(d, models[i], opt, sh)
+				var keep func(*Result, error)
 				if len(later[i]) > 0 {
-					sh.keep(models[i], res, err)
+					keep = func(res *Result, err error) { sh.keep(models[i], res, err) }
 				}
+				res, err := sh.fitOuter(d, cd, c, models[i], opt, keep)
 				mu.Lock()
 				for _, j := range later[i] {
 					waiting[j]--

@@ -37,9 +37,16 @@ func (d *Data) checkRank(workers int) ([]float64, error) {
 // returns the sums of this check for later ones (nil when d has indicator
 // columns).
 func (d *Data) checkRankWith(workers int, base *rankSums) ([]float64, *rankSums, error) {
+	sd, _, sums, err := d.checkRankMean(workers, base)
+	return sd, sums, err
+}
+
+// checkRankMean is checkRankWith, which also gives the predictors'
+// weighted means.
+func (d *Data) checkRankMean(workers int, base *rankSums) (sd, mean []float64, sums *rankSums, err error) {
 	K := len(d.Predictors)
 	if K == 0 {
-		return nil, nil, nil
+		return nil, nil, nil, nil
 	}
 	var base1, base2 *colSums
 	if base.of(d) {
@@ -53,29 +60,29 @@ func (d *Data) checkRankWith(workers int, base *rankSums) ([]float64, *rankSums,
 	cs := d.columnSums(workers, nil, 0, base1)
 	if base1 == nil && cs.nonFinite() {
 		if err := d.nonFiniteX(); err != nil {
-			return nil, nil, err
+			return nil, nil, nil, err
 		}
 	}
 	for k := 0; k < K; k++ {
 		switch maxAbs := cs.maxAbs[k]; {
 		case maxAbs > maxScale:
-			return nil, nil, inputErr("predictor %q has the value %g in row %d: too large to fit (values up to %g can be fitted exactly); rescale the predictor (for example divide it by 1e%d)",
+			return nil, nil, nil, inputErr("predictor %q has the value %g in row %d: too large to fit (values up to %g can be fitted exactly); rescale the predictor (for example divide it by 1e%d)",
 				d.Predictors[k], d.at(cs.at[k], k), cs.at[k]+1, maxScale, int(math.Floor(math.Log10(maxAbs))))
 		case maxAbs > 0 && maxAbs < minScale:
-			return nil, nil, inputErr("predictor %q has values no larger than %g in absolute value: too small to fit exactly (the largest value must be at least %g); rescale the predictor (for example multiply it by 1e%d)",
+			return nil, nil, nil, inputErr("predictor %q has values no larger than %g in absolute value: too small to fit exactly (the largest value must be at least %g); rescale the predictor (for example multiply it by 1e%d)",
 				d.Predictors[k], maxAbs, minScale, -int(math.Floor(math.Log10(maxAbs))))
 		}
 	}
-	mean := make([]float64, K)
+	mean = make([]float64, K)
 	for k := range mean {
 		mean[k] = cs.sum[k] / cs.tot
 	}
 	second := d.columnSums(workers, mean, cs.tot, base2)
-	sd, err := rankVerdict(d.Predictors, mean, cs.tot, second.cross)
+	sd, err = rankVerdict(d.Predictors, mean, cs.tot, second.cross)
 	if err != nil {
-		return nil, nil, err
+		return nil, nil, nil, err
 	}
-	return sd, d.keepSums(cs, second), nil
+	return sd, mean, d.keepSums(cs, second), nil
 }
 
 // rankVerdict refuses a predictor that is constant or collinear with the
