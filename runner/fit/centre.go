@@ -15,8 +15,8 @@ import "math"
 const centreAbove = 1e3
 
 // centring is the shift of each predictor (0 for a column left as it is)
-// that the iterations of a fit ran on: with x' = x - c the linear
-// predictor L_m = tau_m - x'b_m is tau'_m - x”b_m, tau'_m = tau_m - c'b_m,
+// that the iterations of a fit ran on: the linear
+// predictor L_m = tau_m - x'b_m is tau'_m - (x - c)'b_m, tau'_m = tau_m - c'b_m,
 // the slopes unchanged. Only the cutpoints differ between the two
 // coordinates.
 type centring struct {
