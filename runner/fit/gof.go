@@ -162,6 +162,10 @@ func lipsitzVerdict(r, full *Result, G int, err error) Test {
 	if err != nil {
 		return refitFailed(G, err)
 	}
+	if r.OK() && full != nil && !full.OK() {
+		// The refit alone failed: say so, not that the model did.
+		return failedTest("lipsitz", "the model with indicators of the %d groups of predicted score %s", G, refitFailure(full))
+	}
 	t := LRTest(r, full)
 	t.Name = "lipsitz"
 	return t
@@ -194,6 +198,19 @@ func refitFailed(G int, err error) Test {
 		return failedTest("lipsitz", "not defined for these data: the score groups coincide with values of the predictors (too few distinct predictor patterns for %d groups), so their indicators are a combination of the predictors (%v)", G, err)
 	}
 	return failedTest("lipsitz", "the model with group indicators could not be fitted: %v", err)
+}
+
+// refitFailure says why the refit full with score-group indicators has no
+// usable maximum, naming what diverges.
+func refitFailure(full *Result) string {
+	if full.Status != StatusNoFiniteMaximum {
+		return fmt.Sprintf("did not converge (%s)", full.Message)
+	}
+	why := "the log-likelihood keeps rising as parameters diverge"
+	if s := full.Separation; s != nil && len(s.Parameters) > 0 {
+		why = fmt.Sprintf("the log-likelihood keeps rising as %s diverge", strings.Join(s.Parameters, ", "))
+	}
+	return "has no finite maximum (separation: " + why + ", as when an outcome category is missing from some of the groups), so the likelihood ratio has no finite value"
 }
 
 // withIndicators is the data and model of fit r's Lipsitz refit, with the

@@ -2,6 +2,7 @@ package fit
 
 import (
 	"math"
+	"math/rand/v2"
 	"sort"
 	"strings"
 	"testing"
@@ -405,5 +406,46 @@ func TestLipsitzNotDefinedOnFewPatterns(t *testing.T) {
 	}
 	if lz.Test.OK || !strings.Contains(lz.Test.Reason, "not defined for these data") || lz.Table == nil || lz.Table.Groups != 2 {
 		t.Errorf("got %+v with %d groups", lz.Test, lz.Table.Groups)
+	}
+}
+
+// TestLipsitzRefitSeparated: seeded data of our own in which the lowest
+// category occurs only where x < -1 (every such row is in category 1), and
+// x's effect dominates z's, so that the lowest groups of predicted score
+// hold every row of category 1:
+// the parallel model has a finite maximum (its slope is shared by every
+// boundary), the refit with group indicators none (the indicators of the
+// groups without category 1 and tau[1] diverge). The test is not made, and
+// its reason says that the refit, not the model, has no finite maximum.
+func TestLipsitzRefitSeparated(t *testing.T) {
+	rng := rand.New(rand.NewPCG(20261203, 8))
+	d := &Data{J: 4, Predictors: []string{"x", "z"}}
+	for i := 0; i < 300; i++ {
+		x, z := rng.NormFloat64(), rng.NormFloat64()
+		u := rng.Float64()
+		lat := 1.5*x + 0.2*z + math.Log(u/(1-u))
+		y := 1
+		switch {
+		case x < -1:
+			y = 0
+		case lat > 0.8:
+			y = 3
+		case lat > -0.5:
+			y = 2
+		}
+		d.Y = append(d.Y, y)
+		d.X = append(d.X, x, z)
+	}
+	r, err := Fit(d, Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(2, Parallel)}, Options{})
+	if err != nil || !r.OK() {
+		t.Fatal(err, r.Message)
+	}
+	lz, err := LipsitzTest(d, r, 0, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := "the model with indicators of the 10 groups of predicted score has no finite maximum (separation: the log-likelihood keeps rising as tau[1]"
+	if lz.Test.OK || !strings.HasPrefix(lz.Test.Reason, want) || strings.Contains(lz.Test.Reason, r.Name) {
+		t.Errorf("test %+v", lz.Test)
 	}
 }
