@@ -17,7 +17,7 @@ func CheckData(p *plan.Plan) error {
 		if err != nil {
 			return err
 		}
-		if err := a.CheckDesign(r, ld.FitData); err != nil {
+		if err := a.CheckDesign(r, ld.Design, ld.FitData); err != nil {
 			return err
 		}
 		// The new rows to predict: read through the design as run reads

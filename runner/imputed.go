@@ -558,6 +558,9 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 	}
 	for k, d := range run.Sets {
 		if err := fit.CheckDesign(d); err != nil {
+			if _, _, ok := r.collinearTerms(err, dz, an.Source); ok {
+				return nil, an.designError(r, dz, err, fmt.Sprintf("imputed set %d", k+1))
+			}
 			return nil, fmt.Errorf("%s: outcome %q, imputed set %d: %v", an.Source, oc.Column, k+1, err)
 		}
 	}

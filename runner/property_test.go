@@ -29,6 +29,7 @@ var documentedErrors = []string{
 	"rows were dropped for missing values",
 	"is constant (every row has",
 	"is perfectly collinear with",
+	"is collinear with",
 	"parameters but only",
 }
 

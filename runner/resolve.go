@@ -300,9 +300,9 @@ func (a *Analysis) Clusters(r Reading, ds *data.Dataset) error {
 
 // CheckDesign checks an outcome's fit input before any model is fitted
 // (categories, weights, constant or collinear predictors).
-func (a *Analysis) CheckDesign(r Reading, d *fit.Data) error {
+func (a *Analysis) CheckDesign(r Reading, dz *design.Design, d *fit.Data) error {
 	if err := fit.CheckDesign(d); err != nil {
-		return fmt.Errorf("%s: outcome %q: %v", a.DataFile, r.Outcome, err)
+		return a.designError(r, dz, err, "")
 	}
 	return nil
 }

@@ -99,7 +99,7 @@ func runOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash 
 	ds, dz := ld.Data, ld.Design
 	or := &OutcomeResult{Outcome: oc, Data: ds, FitData: ld.FitData, Design: dz, Terms: termsOf(dz), dataOptions: r.Options}
 	or.Notes = append(append(notes, ds.Notes...), dz.Notes...)
-	if err := an.CheckDesign(r, or.FitData); err != nil {
+	if err := an.CheckDesign(r, dz, or.FitData); err != nil {
 		return nil, err
 	}
 	fopt := an.Fit

@@ -1,7 +1,6 @@
 package runner
 
 import (
-	"fmt"
 
 	"ordplan/runner/data"
 	"ordplan/runner/design"
@@ -115,7 +114,7 @@ func fitOne(s SingleFit) (*fit.Result, *Loaded, *Analysis, error) {
 	}
 	res, err := fit.Fit(ld.FitData, model, a.Fit)
 	if err != nil {
-		return nil, ld, a, fmt.Errorf("%s: %w", a.DataFile, err)
+		return nil, ld, a, a.designError(a.Outcomes[0], ld.Design, err, "")
 	}
 	if sw := a.Errors.Sandwich(ds, ld.FitData); sw != nil && res.OK() {
 		if err := sw(res); err != nil {

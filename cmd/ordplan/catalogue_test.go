@@ -213,13 +213,23 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		fmt.Fprintf(&two, "%s,%s,%s,%s\n", f[0], other, f[1], f[2])
 	}
 	var scales strings.Builder
-	scales.WriteString("y,a,b,e90,em90,e160,em160,em300\n")
+	scales.WriteString("y,a,b,e90,em90,e160,em160,em300,far\n")
 	for _, r := range rows {
 		f := strings.Split(r, ",")
-		fmt.Fprintf(&scales, "%s,%s,%s,%se90,%se-90,%se160,%se-160,%se-300\n", f[0], f[1], f[2], f[1], f[1], f[1], f[1], f[1])
+		a, _ := strconv.ParseFloat(f[1], 64)
+		fmt.Fprintf(&scales, "%s,%s,%s,%se90,%se-90,%se160,%se-160,%se-300,%s\n", f[0], f[1], f[2], f[1], f[1], f[1], f[1], f[1], strconv.FormatFloat(1e6+a, 'f', 4, 64))
+	}
+	// Levels: region is a merging of site's levels (n, e: ne; s, w: sw).
+	var levels strings.Builder
+	levels.WriteString("y,a,site,region\n")
+	for i, r := range rows {
+		f := strings.Split(r, ",")
+		site := []string{"n", "e", "s", "w"}[i%4]
+		region := map[string]string{"n": "ne", "e": "ne", "s": "sw", "w": "sw"}[site]
+		fmt.Fprintf(&levels, "%s,%s,%s,%s\n", f[0], f[1], site, region)
 	}
 	files := map[string][]byte{
-		"scales.csv": []byte(scales.String()),
+		"scales.csv": []byte(scales.String()), "levels.csv": []byte(levels.String()),
 		"huge.yaml":  append([]byte("# "), bytes.Repeat([]byte("x"), 4<<20-1)...),
 		"gz.csv":     gz.Bytes(), "u16.csv": u16(true), "u16nobom.csv": u16(false),
 		"cr.csv": []byte(strings.ReplaceAll(csv, "\n", "\r")), "two.csv": []byte(two.String()),
@@ -744,7 +754,40 @@ func catalogue(dir string) (items []badInput) {
 		{id: "M1", name: "constant predictor", args: fitArgs(d("d.csv"), "--predictors", "a,c"), code: 1,
 			want: []string{`predictor "c" is constant (every row has 5): it cannot be estimated alongside the cutpoints; remove it`}},
 		{id: "M2", name: "perfectly collinear predictors", args: fitArgs(d("d.csv"), "--predictors", "a,b,d"), code: 1,
-			want: []string{`predictor "d" is perfectly collinear with "a", "b" (and the constant): remove one of them`}},
+			want: []string{`d.csv: --predictors item 3: term "d" is collinear with terms "a", "b" and the constant, so their effects cannot be told apart; remove one of the terms`}},
+		{id: "M16", name: "collinear terms in a plan", args: []string{"check"}, plan: edit("[a, b]", "[a, b, d]"), code: 1,
+			want: []string{`M16.yaml:6:20: predictors[2]: term "d" is collinear with terms "a" (`, `M16.yaml:6:14), "b" (`, `M16.yaml:6:17) and the constant, so their effects cannot be told apart; remove one of the terms (data d.csv, outcome "y")`}},
+		{id: "M17", name: "a categorical term whose levels merge another's", args: fitArgs(d("levels.csv"), "--predictors", "a,site|levels=n/e/s/w,region|levels=ne/sw"), code: 1,
+			want: []string{`levels.csv: --predictors item 3: term "region" is collinear with term "site" and the constant: its column "region.sw" is a linear combination of "site.s", "site.w" and the constant, so their effects cannot be told apart; remove one of the terms`}},
+		{id: "M18", name: "a predictor far from zero for its spread (1e6 + a, a within [-2, 2])", args: fitArgs(d("scales.csv"), "--predictors", "far,b", "--json"), code: 0,
+			want: []string{`"status": "ok"`}, check: func(t *testing.T, dir, out, errs string) {
+				// The linear predictor's identity: tau_m - b_a (1e6 + a) - ... =
+				// (tau_m - 1e6 b_a) - b_a a - ...: the fit on a, with the
+				// cutpoints moved by 1e6 b_a, and the same errors for the slopes.
+				got := readFitJSON(t, out)
+				bout, berrs, code := runCLI(fitArgs(filepath.Join(dir, "scales.csv"), "--predictors", "a,b", "--json")...)
+				if code != 0 {
+					t.Fatalf("fit on a: exit %d: %s", code, berrs)
+				}
+				base := readFitJSON(t, bout)
+				if got.LogLik == nil || math.Abs(*got.LogLik-*base.LogLik) > 1e-8*math.Abs(*base.LogLik) {
+					t.Errorf("log-likelihood %v, on a %v", got.LogLik, *base.LogLik)
+				}
+				ba := base.Estimates["a"]
+				for name, v := range base.Estimates {
+					gname, se := name, base.StdErrors[name]
+					if name == "a" {
+						gname = "far"
+					}
+					if strings.HasPrefix(name, "tau[") {
+						v += 1e6 * ba
+						se = got.StdErrors[name] // checked by the unit tests (TestPredictorFarFromZero)
+					}
+					if g := got.Estimates[gname]; math.Abs(g-v) > 1e-6*math.Max(math.Abs(v), se) || math.Abs(got.StdErrors[gname]-se) > 1e-6*se {
+						t.Errorf("%s = %v (se %v), want %v (se %v)", gname, g, got.StdErrors[gname], v, se)
+					}
+				}
+			}},
 		{id: "M3", name: "constant predictor in a plan run", args: []string{"run"}, plan: edit("[a, b]", "[a, c]"), code: 1,
 			want: []string{`"c" is constant`}},
 		{id: "M4", name: "complete separation", args: fitArgs(d("sep.csv"), "--predictors", "x,z"), code: 1,

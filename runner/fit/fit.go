@@ -219,11 +219,27 @@ func (r *Result) OK() bool {
 }
 
 // InputError is bad input to a fit, with a message for the user.
-type InputError struct{ Msg string }
+type InputError struct {
+	Msg string
+	// Collinear, when set, is the collinearity the message describes,
+	// for a caller that names the predictors in its own terms.
+	Collinear *Collinearity
+}
+
+// Collinearity is a predictor that is a linear combination of earlier
+// ones and the constant.
+type Collinearity struct {
+	Predictor int   // index of the predictor
+	With      []int // indices of the earlier predictors in the combination
+	// Unexplained is the share of the predictor's variance the others and
+	// the constant leave unexplained (1 - R^2): below 1e-10, at the level
+	// of rounding for an exact combination.
+	Unexplained float64
+}
 
 func (e *InputError) Error() string { return e.Msg }
 
-func inputErr(format string, a ...any) error { return &InputError{fmt.Sprintf(format, a...)} }
+func inputErr(format string, a ...any) error { return &InputError{Msg: fmt.Sprintf(format, a...)} }
 
 // Fit estimates model m on data d.
 func Fit(d *Data, m Model, opt Options) (*Result, error) {
@@ -265,7 +281,7 @@ func fitValid(d *Data, m Model, opt Options, sh *shared) (*Result, error) {
 func fitChecked(d *Data, m Model, opt Options, sh *shared) (res *Result, err error) {
 	ly, err := newLayout(m, d.J, d.Predictors)
 	if err != nil {
-		return nil, &InputError{err.Error()}
+		return nil, &InputError{Msg: err.Error()}
 	}
 	nobs := d.NObs()
 	if opt.Sampling {

@@ -203,7 +203,7 @@ func FitFromSums(w Whole, m Model, sums func(theta []float64, order int) (*Sums,
 	}
 	ly, err := newLayout(m, w.J, w.Predictors)
 	if err != nil {
-		return nil, &InputError{err.Error()}
+		return nil, &InputError{Msg: err.Error()}
 	}
 	if len(constrainedPredictors(m)) > 0 {
 		return nil, inputErr("partitioned fits of constrained models are not available (their multi-start search needs the rows): fit %s locally", m.Name())

@@ -1,6 +1,7 @@
 package fit
 
 import (
+	"fmt"
 	"math"
 	"strings"
 	"sync"
@@ -126,13 +127,15 @@ func rankVerdict(names []string, mean []float64, tot float64, C []float64) ([]fl
 				if err := ch.SolveVecTo(&beta, rhs); err == nil {
 					resid := 1 - mat.Dot(&beta, rhs)
 					if resid < 1e-10 {
+						c := &Collinearity{Predictor: k, Unexplained: math.Max(resid, 0)}
 						var with []string
 						for i, a := range kept {
 							if math.Abs(beta.AtVec(i)) > 1e-6 {
 								with = append(with, names[a])
+								c.With = append(c.With, a)
 							}
 						}
-						return nil, inputErr("predictor %q is perfectly collinear with %s (and the constant): remove one of them", names[k], strings.Join(quoteAll(with), ", "))
+						return nil, &InputError{Msg: fmt.Sprintf("predictor %q is perfectly collinear with %s (and the constant): remove one of them", names[k], strings.Join(quoteAll(with), ", ")), Collinear: c}
 					}
 				}
 			}
