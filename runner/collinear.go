@@ -108,7 +108,6 @@ func (r Reading) collinearTerms(err error, dz *design.Design, source string) (pl
 	return place, msg + b.String(), true
 }
 
-
 // designError is err, an error of the fit input of outcome r (design dz)
 // found by the rank check or a fit, as the command reports it: a
 // collinearity in the words of the terms (collinearTerms), at the plan's

@@ -1,7 +1,6 @@
 package runner
 
 import (
-
 	"ordplan/runner/data"
 	"ordplan/runner/design"
 	"ordplan/runner/fit"

@@ -230,8 +230,8 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 	}
 	files := map[string][]byte{
 		"scales.csv": []byte(scales.String()), "levels.csv": []byte(levels.String()),
-		"huge.yaml":  append([]byte("# "), bytes.Repeat([]byte("x"), 4<<20-1)...),
-		"gz.csv":     gz.Bytes(), "u16.csv": u16(true), "u16nobom.csv": u16(false),
+		"huge.yaml": append([]byte("# "), bytes.Repeat([]byte("x"), 4<<20-1)...),
+		"gz.csv":    gz.Bytes(), "u16.csv": u16(true), "u16nobom.csv": u16(false),
 		"cr.csv": []byte(strings.ReplaceAll(csv, "\n", "\r")), "two.csv": []byte(two.String()),
 		"bad.xlsx": append([]byte("PK\x03\x04"), bytes.Repeat([]byte{7}, 200)...), "notzip.xlsx": []byte(csv),
 		"bad.parquet": []byte("PAR1garbagegarbagePAR1"), "notpq.parquet": []byte(csv), "dates.parquet": datesParquet(t),
