@@ -127,7 +127,7 @@ func TestImputedReport(t *testing.T) {
 		}
 	}
 	me := strings.SplitN(string(files["table-marginal-effects-y.csv"]), "\n", 2)[0]
-	if !strings.HasSuffix(me, ",df,fmi") {
+	if !strings.HasSuffix(me, ",df,fmi,at") {
 		t.Errorf("marginal effects header: %s", me)
 	}
 }

@@ -279,9 +279,15 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 						row[len(row)-1] = csvNum(pp.FMI)
 					}
 				}
-				rows = append(rows, row)
+				at := ""
+				if set.Point != nil {
+					at = pointList(or, set.Point)
+				}
+				rows = append(rows, append(row, at))
 			}
 		}
+		head = append(head, "at")
+		about += "; at: the point of effects at the means or at the plan's profile (every column the predictors read)"
 		add("marginal-effects", about, head, rows)
 	}
 	// Predicted probabilities over the focus predictor.

@@ -121,8 +121,24 @@ models: {approaches: [cumulative], effects: [parallel]}
 tests: {parallel_lines: []}
 rules:
   - choose: {by: bic}
+inference: {marginal_effects: [average, means]}
 `
 	files := renderSource(t, t.TempDir(), src, 1)
+	// The marginal effects at the means say in the CSV where they are (the
+	// point the report names), the averages have no point.
+	recs, err := csv.NewReader(bytes.NewReader(files["table-marginal-effects-safety.csv"])).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if h := recs[0]; h[len(h)-1] != "at" {
+		t.Errorf("marginal effects header %q", h)
+	}
+	for _, r := range recs[1:] {
+		at := r[len(r)-1]
+		if (r[0] == "means") != strings.HasPrefix(at, "pilot = 0.") || r[0] == "means" && !strings.Contains(at, ", age = ") {
+			t.Errorf("%s row at %q", r[0], at)
+		}
+	}
 	md, orCSV := string(files["report.md"]), string(files["table-odds-ratios-safety.csv"])
 	hasAll(t, "report.md", md, "Not shown: the columns of age_s.", "| Predictor | Change | Boundary |", "| pilot | 1 against 0 | every boundary |")
 	hasAll(t, "odds-ratios CSV", orCSV, "model,predictor,change,holds_at,boundary,", ",pilot,1 against 0,,0,")

@@ -3,7 +3,9 @@ package runner
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
+	"strings"
 
 	"ordplan/plan"
 )
@@ -95,6 +97,22 @@ func adjustHypotheses(an *Analysis, res *Result) {
 	note := fmt.Sprintf("Multiplicity: the p-values of the plan's hypotheses in the chosen models are adjusted by %s over a family of %d tests (every hypothesis of every outcome with a chosen model)", name, len(ps))
 	if left > 0 {
 		note += fmt.Sprintf("; %d hypothesis test(s) in a chosen model could not be computed and are not in the family", left)
+	}
+	// A hypothesis naming parameters the chosen model does not have is not
+	// tested there, so it is not in the family either: say which.
+	var absent []string
+	for _, or := range res.Outcomes {
+		if or.Chosen == nil {
+			continue
+		}
+		for _, h := range an.Inference.Hypotheses {
+			if !slices.ContainsFunc(or.Hypotheses, func(hr HypothesisResult) bool { return hr.Line == h.Line && hr.Text == h.Text && hr.Model == or.Chosen.ID }) {
+				absent = append(absent, fmt.Sprintf("`%s` (plan line %d) in %s", h.Text, h.Line, or.Chosen.ID))
+			}
+		}
+	}
+	if len(absent) > 0 {
+		note += "; not in the family, since the chosen model has no parameter it names (it is tested only in the other candidates, descriptively): " + strings.Join(absent, ", ")
 	}
 	res.Notes = append(res.Notes, note+".")
 }

@@ -91,3 +91,23 @@ func TestAdjustHypothesesFamily(t *testing.T) {
 		t.Errorf("notes %q", res.Notes)
 	}
 }
+
+// A hypothesis of the plan that the chosen model cannot test (it names a
+// parameter that model does not have) is not in the family, and the note
+// says which, where: a reviewer counting the plan's hypotheses must find
+// every one either in the family or named as left out.
+func TestAdjustHypothesesNamesThoseLeftOut(t *testing.T) {
+	ok := func(p float64) fit.Test { return fit.Test{Name: "wald", OK: true, P: p} }
+	a := &OutcomeResult{Chosen: &FitEntry{ID: "m1"}, Hypotheses: []HypothesisResult{
+		{Text: "h1", Line: 6, Model: "m1", Test: ok(0.01)}, {Text: "x[1] = x[2]", Line: 7, Model: "m2", Test: ok(0.2)}}}
+	p := &plan.Plan{Inference: plan.Inference{Hypotheses: []plan.Hypothesis{{Text: "h1", Line: 6}, {Text: "x[1] = x[2]", Line: 7}}, Multiplicity: plan.MultiplicityHolm}}
+	res := &Result{Plan: p, Outcomes: []*OutcomeResult{a}}
+	adjustHypotheses(ResolvePlan(p), res)
+	if len(res.Notes) != 1 || !strings.Contains(res.Notes[0], "over a family of 1 tests") ||
+		!strings.Contains(res.Notes[0], "not in the family, since the chosen model has no parameter it names (it is tested only in the other candidates, descriptively): `x[1] = x[2]` (plan line 7) in m1.") {
+		t.Errorf("notes %q", res.Notes)
+	}
+	if a.Hypotheses[1].Adjusted != nil || a.Hypotheses[0].Adjusted == nil || *a.Hypotheses[0].Adjusted != 0.01 {
+		t.Errorf("adjusted: %+v", a.Hypotheses)
+	}
+}
