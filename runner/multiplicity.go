@@ -106,7 +106,9 @@ func adjustHypotheses(an *Analysis, res *Result) {
 			continue
 		}
 		for _, h := range an.Inference.Hypotheses {
-			if !slices.ContainsFunc(or.Hypotheses, func(hr HypothesisResult) bool { return hr.Line == h.Line && hr.Text == h.Text && hr.Model == or.Chosen.ID }) {
+			if !slices.ContainsFunc(or.Hypotheses, func(hr HypothesisResult) bool {
+				return hr.Line == h.Line && hr.Text == h.Text && hr.Model == or.Chosen.ID
+			}) {
 				absent = append(absent, fmt.Sprintf("`%s` (plan line %d) in %s", h.Text, h.Line, or.Chosen.ID))
 			}
 		}
