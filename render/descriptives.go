@@ -8,6 +8,7 @@ import (
 	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/data"
+	"ordplan/runner/design"
 )
 
 // descriptive is the summary of one predictor (or one level of a
@@ -24,14 +25,20 @@ type descriptive struct {
 }
 
 // describe summarizes every raw predictor column of ds by outcome
-// category, weighted by the frequency weights. levels gives the levels of
+// category, weighted by the frequency weights, or by sampling weights
+// (sampling) rescaled to sum to the rows (design.RowScaled), so that the
+// numbers do not depend on the sampling weights' scale. levels gives the levels of
 // a categorical column (its cells hold the level index), nil for a
 // numeric one. A row whose outcome is missing (-1, the original data of an
 // imputed run) is left out, and so is a missing predictor value (NaN) from
 // that predictor's summary: each predictor over the rows where it and the
 // outcome are observed.
-func describe(ds *data.Dataset, levels [][]string) []descriptive {
+func describe(ds *data.Dataset, levels [][]string, sampling bool) []descriptive {
 	K, J := ds.K, len(ds.Categories)
+	weights := ds.Weights
+	if sampling {
+		weights = design.RowScaled(weights)
+	}
 	var out []descriptive
 	one := func(label string, k int, counts bool, value func(i int) float64) {
 		s := descriptive{Label: label, Counts: counts, N: make([]float64, J+1), Mean: make([]float64, J+1),
@@ -39,8 +46,8 @@ func describe(ds *data.Dataset, levels [][]string) []descriptive {
 		m2 := make([]float64, J+1)
 		for i := 0; i < ds.N; i++ {
 			w := 1.0
-			if ds.Weights != nil {
-				w = ds.Weights[i]
+			if weights != nil {
+				w = weights[i]
 			}
 			if w == 0 || ds.Y[i] < 0 || math.IsNaN(ds.X[i*K+k]) {
 				continue
@@ -107,12 +114,16 @@ func sourceLevels(or *runner.OutcomeResult) [][]string {
 
 // writeDescriptives writes the predictors by outcome category and the
 // missing-value pattern of the used columns.
-func writeDescriptives(d *doc, or *runner.OutcomeResult) {
-	ds := describe(describedData(or), sourceLevels(or))
+func writeDescriptives(d *doc, or *runner.OutcomeResult, sampling bool) {
+	ds := describe(describedData(or), sourceLevels(or), sampling)
 	if len(ds) > 0 {
 		lv := or.Data.Categories
 		weighted := ""
-		if describedData(or).Weights != nil {
+		switch {
+		case describedData(or).Weights == nil:
+		case sampling:
+			weighted = " Counts, means and SDs are weighted by the sampling weights, rescaled to sum to the number of rows."
+		default:
 			weighted = " Counts, means and SDs are weighted by the frequency weights."
 		}
 		d.p("Each predictor in each outcome category: mean (SD) for a numeric predictor; for a 0/1 predictor and for each level of a categorical one, the number of observations with 1 (with that level) and their share of the category.%s", weighted)

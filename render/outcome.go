@@ -41,17 +41,30 @@ func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 func writeData(d *doc, or *runner.OutcomeResult, sampling bool) {
 	ds := or.AsRead()
 	d.h(3, "Data")
-	d.p("Outcome column `%s`, %d categories in this order: %s. %d rows read, %d used; %s. Observations (sum of weights): %s.",
-		or.Outcome.Column, len(ds.Categories), strings.Join(ds.Categories, " < "), ds.RowsRead, ds.N, ds.DropSummary(), numfmt.Count(ds.NObs()))
+	obs := fmt.Sprintf("Observations (sum of weights): %s.", numfmt.Count(ds.NObs()))
+	// rowScale puts sampling-weighted counts on the scale of the rows (the
+	// weights rescaled to sum to the rows, as in design.RowScaled): the
+	// weights' own scale means nothing.
+	rowScale := 1.0
+	if sampling && ds.Weights != nil {
+		rowScale = float64(ds.N) / ds.NObs()
+		obs = fmt.Sprintf("The sampling weights sum to %s; the counts below are weighted, with the weights rescaled to sum to the %d rows used.", numfmt.Num(ds.NObs()), ds.N)
+	}
+	d.p("Outcome column `%s`, %d categories in this order: %s. %d rows read, %d used; %s. %s",
+		or.Outcome.Column, len(ds.Categories), strings.Join(ds.Categories, " < "), ds.RowsRead, ds.N, ds.DropSummary(), obs)
 	var rows [][]string
 	if ob := or.Observed; ob != nil {
 		// On imputed data: the observed values of the original file, not
 		// one imputed set's.
 		total, missing := 0.0, 0.0
+		obScale := 1.0
+		if sampling && ob.Weights != nil {
+			obScale = float64(ob.N) / ob.NObs()
+		}
 		for i, y := range ob.Y {
 			w := 1.0
 			if ob.Weights != nil {
-				w = ob.Weights[i]
+				w = ob.Weights[i] * obScale
 			}
 			if y < 0 {
 				missing += w
@@ -64,9 +77,9 @@ func writeData(d *doc, or *runner.OutcomeResult, sampling bool) {
 		for j, l := range ob.Categories {
 			share := "0.0%"
 			if total > 0 {
-				share = numfmt.Fixed(100*ob.Counts[j]/total, 1) + "%"
+				share = numfmt.Fixed(100*ob.Counts[j]*obScale/total, 1) + "%"
 			}
-			rows = append(rows, []string{l, numfmt.Num(ob.Counts[j]), share})
+			rows = append(rows, []string{l, numfmt.Num(ob.Counts[j] * obScale), share})
 		}
 		if missing > 0 {
 			rows = append(rows, []string{"(missing, imputed)", numfmt.Num(missing), ""})
@@ -74,7 +87,7 @@ func writeData(d *doc, or *runner.OutcomeResult, sampling bool) {
 		d.captioned("Outcome categories, observed values of the original data").table([]string{"Category", "Count", "Share"}, rows)
 	} else {
 		for j, l := range ds.Categories {
-			rows = append(rows, []string{l, numfmt.Num(ds.Counts[j]), numfmt.Fixed(100*ds.Counts[j]/ds.NObs(), 1) + "%"})
+			rows = append(rows, []string{l, numfmt.Num(ds.Counts[j] * rowScale), numfmt.Fixed(100*ds.Counts[j]/ds.NObs(), 1) + "%"})
 		}
 		d.captioned("Outcome categories").table([]string{"Category", "Count", "Share"}, rows)
 	}
@@ -86,7 +99,7 @@ func writeData(d *doc, or *runner.OutcomeResult, sampling bool) {
 		}
 		d.captioned("Predictor terms").table([]string{"Term", "What it is", "Columns"}, rows)
 	}
-	writeDescriptives(d, or)
+	writeDescriptives(d, or, sampling)
 	writeImputation(d, or, sampling)
 }
 

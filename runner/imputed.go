@@ -127,7 +127,7 @@ func imputedSets(a *Analysis, r Reading) (*ImputedRun, []*data.Dataset, *design.
 	}
 	run.Rows = sets[0].N
 	run.Data = sets
-	dz, fds, err := designSets(spec, sets)
+	dz, fds, err := designSets(spec, sets, a.Errors.Sampling)
 	if err != nil {
 		return nil, nil, nil, fmt.Errorf("%s: %v (outcome %q)", src, err, r.Outcome)
 	}
@@ -137,8 +137,8 @@ func imputedSets(a *Analysis, r Reading) (*ImputedRun, []*data.Dataset, *design.
 
 // designSets builds the design on the first imputed set, freezing its
 // constants (centring, knots), and the fit inputs of every set with it.
-func designSets(spec design.Spec, sets []*data.Dataset) (*design.Design, []*fit.Data, error) {
-	dz, d0, err := buildDesign(spec, sets[0])
+func designSets(spec design.Spec, sets []*data.Dataset, sampling bool) (*design.Design, []*fit.Data, error) {
+	dz, d0, err := buildDesign(spec, sets[0], sampling)
 	if err != nil {
 		return nil, nil, fmt.Errorf("%v (imputed set 1)", err)
 	}

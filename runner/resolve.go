@@ -258,7 +258,7 @@ func (a *Analysis) Load(r Reading) (*Loaded, error) {
 	if err := a.Clusters(r, ds); err != nil {
 		return nil, err
 	}
-	dz, d, err := buildDesign(r.Design, ds)
+	dz, d, err := buildDesign(r.Design, ds, a.Errors.Sampling)
 	if err != nil {
 		if !a.Plan {
 			return nil, fmt.Errorf("%s: %v", a.DataFile, err)

@@ -73,6 +73,27 @@ func writeTermsData(t *testing.T, dir, _ string) {
 	}
 }
 
+// writeTiesData writes ties.csv: 60 rows whose x is 1 but on every tenth
+// row, where it is 2 (the 10% and 50% quantiles of x coincide).
+func writeTiesData(t *testing.T, dir, _ string) {
+	t.Helper()
+	var b strings.Builder
+	b.WriteString("y,site,x\n")
+	for i := 0; i < 60; i++ {
+		fmt.Fprintf(&b, "%d,%s,%d\n", 1+(i*7)%3, []string{"north", "east", "south"}[i%3], 1+btoi(i%10 == 0))
+	}
+	if err := os.WriteFile(filepath.Join(dir, "ties.csv"), []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+}
+
+func btoi(b bool) int {
+	if b {
+		return 1
+	}
+	return 0
+}
+
 // termItems are the catalogue's items on predictor terms: categorical
 // columns, transformations, interactions and subsets (the data of the
 // `ordplan fit` items are written to dir by writeTermsData).
@@ -131,6 +152,9 @@ func termItems(dir string) []badInput {
 		{id: "T15", name: "new rows to predict with a level not declared (found by check, before any fit)", args: []string{"check"}, setup: writeTermsData,
 			plan: termsEdit("rules:", "inference: {predict: west.csv}\nrules:"), code: 1,
 			want: []string{`T15.yaml: inference.predict: west.csv:5: column "site": value "west" is not one of the declared levels of this categorical predictor: "north", "east", "south"`}},
+		{id: "T16", name: "spline knots at sample quantiles that are not strictly increasing on the data", args: []string{"check"}, setup: writeTiesData,
+			plan: termsEdit("cat.csv", "ties.csv", "[site, x]", "[site, {name: xs, column: x, spline: {quantiles: [0.1, 0.5, 0.9]}}]"), code: 1,
+			want: []string{`T16.yaml:6:20: predictors[1]: column "x": the spline knots [1, 1, 1.1000000000000014] are not strictly increasing on the transformed values (too few distinct values for the quantiles asked) (data ties.csv, outcome "y")`}},
 		{id: "T14", name: "a subset that leaves out a declared level", args: []string{"check", "--no-data"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: site, none_of: [south]}\npredictors:"), code: 1,
 			want: []string{`T14.yaml:7:5: subset[0]: leaves out the rows of level "south" of site, which categorical.site declares: no row used has it, so its column cannot be estimated; remove the level from categorical.site.levels (rows outside the subset may keep it) or set categorical.site.unobserved: drop` + "\n"}},
