@@ -75,7 +75,9 @@ func FuzzFitFlags(f *testing.F) {
 		if strings.Contains(stderr.String(), "internal error") {
 			t.Fatalf("ordplan %q: %s", args, stderr.String())
 		}
-		if code != exitOK && strings.TrimSpace(stderr.String()) == "" {
+		// A fit without usable estimates (no finite maximum, not converged)
+		// is printed with its status and why, on stdout, and exits 1.
+		if code != exitOK && strings.TrimSpace(stderr.String()) == "" && !strings.Contains(stdout.String(), "Status ") {
 			t.Fatalf("ordplan %q: exit %d with nothing said", args, code)
 		}
 	})
