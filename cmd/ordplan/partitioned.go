@@ -33,7 +33,7 @@ func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, std
 		return usageOrFail("fit", err, stderr)
 	}
 	dopt := a.Outcomes[0].Options
-	whole, refs, read, err := queue.PartitionFiles(parts, dopt)
+	whole, refs, kept, err := queue.PartitionFiles(parts, dopt)
 	if err != nil {
 		return fail(stderr, err)
 	}
@@ -68,11 +68,11 @@ func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, std
 	if err != nil {
 		return fail(stderr, err)
 	}
-	drop := fmt.Sprintf("%d rows dropped for missing values or zero weight", read-whole.Rows)
+	drop := kept.DropSummary()
 	for _, n := range whole.Notes {
 		drop += "; " + strings.TrimSuffix(n, ".")
 	}
-	sum := render.DataSummary{File: s.DataName(), Outcome: s.Outcome, RowsRead: read, RowsUsed: whole.Rows, DropSummary: drop, Sampling: s.Sampling}
+	sum := render.DataSummary{File: s.DataName(), Outcome: s.Outcome, RowsRead: kept.RowsRead(), RowsUsed: whole.Rows, DropSummary: drop, Sampling: s.Sampling}
 	if err := f.print(stdout, res, sum, base, checks); err != nil {
 		return fail(stderr, err)
 	}

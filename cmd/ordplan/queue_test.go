@@ -728,6 +728,18 @@ func TestFitPartsJudgedAsOneDataSet(t *testing.T) {
 	if sameLines(local) != sameLines(r[0]) || !strings.Contains(r[0], "\nLipsitz test (10 groups of predicted score): chi2(9) = ") {
 		t.Errorf("the fit over parts prints otherwise than the local one:\n%s\n---\n%s\n%s", local, r[0], r[1])
 	}
+	// The rows read, used and dropped by reason, as the parts read as one.
+	dataLine := func(s string) string {
+		for _, l := range strings.Split(s, "\n") {
+			if strings.HasPrefix(l, "Data ") {
+				return l
+			}
+		}
+		return ""
+	}
+	if a, b := dataLine(local), dataLine(r[0]); a == "" || a != b || !strings.Contains(a, "rows dropped for missing values or zero weight (age: ") {
+		t.Errorf("data line here %q, over the queue %q", a, b)
+	}
 	few := []string{parts[0], parts[1]}
 	_, want, _ := runCLI(append(args, "--parts", strings.Join(few, ","))...)
 	select {

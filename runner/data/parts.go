@@ -297,6 +297,13 @@ func (s *PartsSummary) Add(ds *Dataset) {
 	}
 }
 
+// RowsRead is the number of data rows of all parts.
+func (s *PartsSummary) RowsRead() int { return s.d.RowsRead }
+
+// DropSummary describes the rows the parts dropped, in the words of
+// Dataset.DropSummary for the data read as one.
+func (s *PartsSummary) DropSummary() string { return s.d.DropSummary() }
+
 // Check judges the whole data as reading it as one data set does: name
 // names it in messages (PartsName), opt are the options the parts were
 // read with, categories and counts the whole data's outcome categories

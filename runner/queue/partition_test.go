@@ -167,7 +167,7 @@ func TestPartitionedFitCodesAsNumbers(t *testing.T) {
 	for _, p := range parts {
 		paths = append(paths, p.Path)
 	}
-	whole, refs, read, err := PartitionFiles(paths, dopt)
+	whole, refs, sum, err := PartitionFiles(paths, dopt)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -179,8 +179,8 @@ func TestPartitionedFitCodesAsNumbers(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if read != local.RowsRead || whole.Rows != local.N || whole.Rows >= ds.N {
-		t.Fatalf("rows read %d, kept %d; the parts have %d (%d kept)", read, whole.Rows, local.RowsRead, local.N)
+	if read := sum.RowsRead(); read != local.RowsRead || whole.Rows != local.N || whole.Rows >= ds.N || sum.DropSummary() != local.DropSummary() {
+		t.Fatalf("rows read %d, kept %d (%s); the parts have %d (%d kept; %s)", read, whole.Rows, sum.DropSummary(), local.RowsRead, local.N, local.DropSummary())
 	}
 	for j := range 4 {
 		if want := local.Counts[j] + local.Counts[4+j] + local.Counts[8+j]; whole.Counts[j] != want {

@@ -20,15 +20,15 @@ import (
 // the outcome holds integer codes and the categories are the codes any
 // partition has, sorted (read as numbers: +2 and 02 are 2), which
 // FitPartitioned passes on to the workers (data.Options.Codes). It also
-// returns the number of data rows read. The values of one_of and none_of
+// returns what the parts kept and dropped (the rows read, the drops by
+// reason), judged on the whole data. The values of one_of and none_of
 // subset conditions are judged once on all parts (data.CheckListValues);
 // whole.Notes has the notes.
-func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRef, int, error) {
+func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRef, *data.PartsSummary, error) {
 	var whole fit.Whole
-	read := 0
 	coded := len(dopt.Categories) == 0 && len(dopt.Codes) == 0
 	if len(dopt.Categories) == 1 {
-		return whole, nil, 0, fmt.Errorf("a partitioned fit needs at least two outcome categories; one is given (%s)", dopt.Categories[0])
+		return whole, nil, nil, fmt.Errorf("a partitioned fit needs at least two outcome categories; one is given (%s)", dopt.Categories[0])
 	}
 	whole.Predictors = dopt.Predictors
 	whole.Spread = &fit.Spread{}
@@ -44,9 +44,8 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 	for _, p := range paths {
 		ds, err := data.Load(p, part)
 		if err != nil {
-			return whole, nil, 0, err
+			return whole, nil, nil, err
 		}
-		read += ds.RowsRead
 		kept.Add(ds)
 		if seen == nil {
 			seen = ds.ListSeen
@@ -57,7 +56,7 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 			for j, c := range ds.Counts {
 				code, err := strconv.ParseInt(ds.Categories[j], 10, 64)
 				if err != nil {
-					return whole, nil, 0, fmt.Errorf("%s: outcome category %q is not an integer code", p, ds.Categories[j])
+					return whole, nil, nil, fmt.Errorf("%s: outcome category %q is not an integer code", p, ds.Categories[j])
 				}
 				counts[code] += c
 			}
@@ -70,7 +69,7 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 		whole.Spread.Merge(fit.SpreadOf(runner.FitData(ds)))
 		h, err := HashFile(p)
 		if err != nil {
-			return whole, nil, 0, err
+			return whole, nil, nil, err
 		}
 		refs = append(refs, PartitionRef{Name: filepath.Base(p), Hash: h, Path: p})
 	}
@@ -78,7 +77,7 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 	// data, as for one file: a part may lack a value the others hold.
 	notes, err := data.CheckListValues(data.PartsName(paths), dopt, seen)
 	if err != nil {
-		return whole, nil, 0, err
+		return whole, nil, nil, err
 	}
 	whole.Notes = notes
 	switch {
@@ -97,7 +96,7 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 	}
 	whole.J = len(whole.Categories)
 	if err := kept.Check(data.PartsName(paths), dopt, whole.Categories, whole.Counts); err != nil {
-		return whole, nil, 0, err
+		return whole, nil, nil, err
 	}
-	return whole, refs, read, nil
+	return whole, refs, &kept, nil
 }

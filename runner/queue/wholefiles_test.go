@@ -25,12 +25,12 @@ func TestPartitionFilesJudgeSubsetValuesOnAllParts(t *testing.T) {
 	if _, err := data.LoadFiles([]string{a, b}, opt); err != nil {
 		t.Fatalf("the parts read as one: %v", err)
 	}
-	whole, _, read, err := PartitionFiles([]string{a, b}, opt)
+	whole, _, sum, err := PartitionFiles([]string{a, b}, opt)
 	if err != nil {
 		t.Fatalf("the parts read one at a time: %v", err)
 	}
-	if read != 8 || whole.Rows != 6 || len(whole.Notes) != 0 {
-		t.Errorf("read %d, kept %d, notes %q; want 8, 6 (no Cul-de-sac row), none", read, whole.Rows, whole.Notes)
+	if read := sum.RowsRead(); read != 8 || whole.Rows != 6 || len(whole.Notes) != 0 {
+		t.Errorf("read %d, kept %d, notes %q; want 8, 6 (no Cul-de-sac row), none", sum.RowsRead(), whole.Rows, whole.Notes)
 	}
 	// Part b alone is judged as data in one file.
 	if _, err := data.Load(b, opt); err == nil {
