@@ -257,7 +257,7 @@ func poolJobs(a *Analysis, sets []*data.Dataset, jobs []*FitEntry, run *ImputedR
 		for k := range perSet {
 			rs[k] = perSet[k][i].Result
 		}
-		r, pl, err := poolResults(rs, run.obs)
+		r, pl, err := poolResults(rs, run.obs, run.Sets)
 		if err != nil {
 			e.Err = err.Error()
 			continue
@@ -295,8 +295,11 @@ func (run *ImputedRun) remote(ex Executor, grids []gridPart, outcome string) err
 // poolResults pools the usable fits of one model on every imputed set:
 // the estimates and covariance by Rubin's rules, the log-likelihood, AIC
 // and BIC as means over the sets, and the derived tables (cutpoints,
-// effects, phi) as means too. The rest is set 1's.
-func poolResults(rs []*fit.Result, obs float64) (*fit.Result, *impute.Pooled, error) {
+// effects, phi) as means too. The rows with a negative predicted category
+// probability, and with them the status, are those of the pooled
+// estimates on the rows of each set (data[k]; poolNegatives). The rest is
+// set 1's.
+func poolResults(rs []*fit.Result, obs float64, data []*fit.Data) (*fit.Result, *impute.Pooled, error) {
 	sets := make([]impute.Set, len(rs))
 	for k, r := range rs {
 		sets[k] = impute.Set{Est: r.Estimates, Cov: r.Cov}
@@ -318,7 +321,43 @@ func poolResults(rs []*fit.Result, obs float64) (*fit.Result, *impute.Pooled, er
 	r.Cutpoints = meanRows([][]float64{first.Cutpoints}, rs, func(x *fit.Result) [][]float64 { return [][]float64{x.Cutpoints} })[0]
 	r.Effects = meanRows(first.Effects, rs, func(x *fit.Result) [][]float64 { return x.Effects })
 	r.Phi = meanRows(first.Phi, rs, func(x *fit.Result) [][]float64 { return x.Phi })
+	if err := poolNegatives(&r, data); err != nil {
+		return nil, nil, err
+	}
 	return &r, pl, nil
+}
+
+// poolNegatives sets the pooled fit r's count of rows with a negative
+// predicted category probability, its smallest fitted probability and its
+// status from the pooled estimates on the rows of each imputed set: the
+// count is that of the set with the most such rows (named in the
+// message), the smallest probability the smallest over the sets. Set 1's
+// own count, which r carries until here, describes set 1's estimates.
+func poolNegatives(r *fit.Result, data []*fit.Data) error {
+	if len(data) == 0 {
+		return nil
+	}
+	wasNegative := r.Status == fit.StatusNegativeProbs
+	r.NegativeRows, r.MinFittedProb = 0, math.Inf(1)
+	worst := 0
+	for k, d := range data {
+		neg, minP, err := fit.PartitionDiagnostics(d, r.Model, r.Estimates)
+		if err != nil {
+			return err
+		}
+		r.MinFittedProb = math.Min(r.MinFittedProb, minP)
+		if neg > r.NegativeRows || k == 0 {
+			r.NegativeRows, r.NRows, worst = neg, d.N(), k
+		}
+	}
+	switch {
+	case r.NegativeRows > 0:
+		r.Status = fit.StatusNegativeProbs
+		r.Message = fmt.Sprintf("%d of %d rows have a negative predicted category probability (crossing cumulative probabilities) under the pooled estimates, in imputed set %d (the set with the most such rows)", r.NegativeRows, r.NRows, worst+1)
+	case wasNegative:
+		r.Status, r.Message = fit.StatusOK, ""
+	}
+	return nil
 }
 
 // meanRows averages a derived table (cutpoints, effects, phi) over the sets.

@@ -52,7 +52,7 @@ func pooledStepwise(an *Analysis, or *OutcomeResult) fit.StepwiseFits {
 			}
 			per[k] = r
 		}
-		r, pl, err := poolResults(per, im.obs)
+		r, pl, err := poolResults(per, im.obs, im.Sets)
 		if err != nil {
 			return nil, err
 		}
