@@ -131,8 +131,8 @@ func (an *Analysis) clusterColumn() string {
 	return ""
 }
 
-// clusterCaveat is what a rule reading a likelihood-based test or AIC or
-// BIC must say under clustered errors: it takes every observation as
+// clusterCaveat is what a rule reading a likelihood-based test or AIC,
+// BIC or TIC (whose penalty fit.TIC makes of per-row scores) must say under clustered errors: it takes every observation as
 // independent, so the clusters the standard errors allow for do not reach
 // it; "" for any other rule or covariance.
 func (an *Analysis) clusterCaveat(r plan.Rule) string {
@@ -144,6 +144,8 @@ func (an *Analysis) clusterCaveat(r plan.Rule) string {
 		return fmt.Sprintf("The %s test takes every observation as independent: it ignores the clusters of %s that the clustered standard errors allow for, and rejects too often when observations of a cluster are alike (the Wald test uses the cluster-robust covariance)", r.Test.Title(), an.clusterColumn())
 	case (r.Kind == plan.RuleChoose || r.Kind == plan.RulePreferSimpler) && (r.By == "aic" || r.By == "bic"):
 		return fmt.Sprintf("%s takes every observation as independent: the clusters of %s that the clustered standard errors allow for do not reach it", criterionName(r.By), an.clusterColumn())
+	case (r.Kind == plan.RuleChoose || r.Kind == plan.RulePreferSimpler) && r.By == "tic":
+		return fmt.Sprintf("%s's penalty is made of each row's scores, as if every observation were independent: the clusters of %s that the clustered standard errors allow for do not reach it", criterionName(r.By), an.clusterColumn())
 	}
 	return ""
 }

@@ -899,6 +899,18 @@ func catalogue(dir string) (items []badInput) {
 			}},
 		{id: "W6", name: "one cluster under clustered errors", args: fitArgs(d("w.csv"), "--predictors", "a,b", "--covariance", "clustered", "--cluster", "site"), code: 1,
 			want: []string{`w.csv: --cluster: column "site" holds one cluster id ("north") in the 120 rows used: cluster-robust errors need at least 2 clusters, and about 40 to be trusted; with one cluster use the sandwich for independent rows`}},
+		{id: "W7", name: "clustered errors with rules reading tests or criteria that ignore the clusters", args: []string{"check"},
+			setup: func(t *testing.T, dir, id string) {
+				os.WriteFile(filepath.Join(dir, "clu.csv"), []byte("y,a,b,c\n1,0.5,1,k\n2,0.1,0,k\n3,0.7,1,m\n1,0.2,0,m\n2,0.9,1,n\n3,0.3,0,n\n"), 0o644)
+			},
+			plan: edit("file: d.csv", "file: clu.csv\n  cluster: c", "rules:", "covariance: clustered\nrules:", "choose: {by: aic}", "choose: {by: tic}"), code: 0,
+			check: func(t *testing.T, dir, out, errs string) {
+				for _, w := range []string{`rules[1].choose (line 15): TIC's penalty is made of each row's scores, as if every observation were independent: the clusters of c that the clustered standard errors allow for do not reach it`} {
+					if !strings.Contains(errs, w) {
+						t.Errorf("check's warnings lack %q:\n%s", w, errs)
+					}
+				}
+			}},
 		{id: "W4", name: "every weight zero", args: []string{"run"},
 			plan: edit("file: d.csv", "file: allzero.csv\n  weights: w"), code: 1,
 			want: []string{`allzero.csv: all 3 data rows were dropped for missing values or zero weight (w = 0: 3)`}},

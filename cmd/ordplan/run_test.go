@@ -142,7 +142,8 @@ func TestCheckListsRules(t *testing.T) {
 
 // With clustered errors, check warns of each rule (and stepwise selection)
 // reading a statistic that takes every observation as independent, as the
-// report's assumptions say; a Wald rule and a TIC choice get no warning,
+// report's assumptions say (TIC too: its penalty is made of per-row
+// scores, counted by hand in fit.TIC's definition); a Wald rule gets no warning,
 // and without clustered errors nothing is said.
 func TestCheckWarnsOfRulesIgnoringClusters(t *testing.T) {
 	dir := t.TempDir()
@@ -171,6 +172,9 @@ func TestCheckWarnsOfRulesIgnoringClusters(t *testing.T) {
 	}
 	if !strings.Contains(stdout, "The likelihood-ratio test takes every observation as independent") {
 		t.Errorf("the rule's description lacks the caveat:\n%s", stdout)
+	}
+	if _, stderr, _ := runCLI("check", plan("clustered", "  - choose: {by: tic}\n")); !strings.Contains(stderr, "rules[0].choose (line 8): TIC's penalty is made of each row's scores, as if every observation were independent: the clusters of c") {
+		t.Errorf("check does not warn of the TIC choice:\n%s", stderr)
 	}
 	if _, stderr, _ := runCLI("check", plan("observed", rules)); strings.Contains(stderr, "warning") {
 		t.Errorf("check warns without clustered errors:\n%s", stderr)
