@@ -804,7 +804,7 @@ func catalogue(dir string) (items []badInput) {
 		{id: "M9", name: "predictor in tiny units (1e-8), nonparallel", args: fitArgs(d("d.csv"), "--predictors", "tiny,b", "--all-nonparallel", "--approach", "stage", "--json"), code: 0,
 			want: []string{`"status": "ok"`}, known: scaleProblem, check: scaled("tiny", 1e-8, "--all-nonparallel", "--approach", "stage")},
 		{id: "M10", name: "iteration limit", args: fitArgs(d("slow.csv"), "--predictors", "a,b,c", "--approach", "adjacent", "--link", "cloglog"), code: 1,
-			want: []string{"Status"},
+			want: []string{"ordplan fit: adjacent/parallel/cloglog has no estimates ("},
 			check: func(t *testing.T, dir, out, errs string) {
 				// Today the engine stops at the iteration limit. The data
 				// are separated, so once that is detected the status will

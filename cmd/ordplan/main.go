@@ -188,9 +188,21 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		return fail(stderr, err)
 	}
 	if !res.OK() {
-		return exitFail
+		return noEstimates(stderr, res)
 	}
 	return exitOK
+}
+
+// noEstimates says on standard error that the fit gave no estimates (its
+// table on standard output says why in full): a script reading only
+// standard error sees more than an exit status.
+func noEstimates(stderr io.Writer, res *fit.Result) int {
+	msg := string(res.Status)
+	if res.Message != "" {
+		msg += ": " + res.Message
+	}
+	fmt.Fprintf(stderr, "ordplan fit: %s has no estimates (%s)\n", res.Name, msg)
+	return exitFail
 }
 
 // defineFitFlags declares the flags of `ordplan fit` on fs.

@@ -77,7 +77,7 @@ func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, std
 		return fail(stderr, err)
 	}
 	if !res.OK() {
-		return exitFail
+		return noEstimates(stderr, res)
 	}
 	return exitOK
 }
