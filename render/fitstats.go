@@ -89,7 +89,7 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		d.p("A column whose term enters an interaction has its odds ratio where the terms it interacts with have their columns at 0 (column Holds at). The exp(b) of an interaction column is a ratio of odds ratios: the factor by which the odds ratio of one of its components changes with a unit of the other.")
 	}
 	if len(omitted) > 0 {
-		d.p("Not shown: the columns of %s. A column of a polynomial or spline basis (or a product with one) has no odds ratio of its own, since a unit change of one basis column with the others held fixed is no change of the predictor; the effect of such a term is in the marginal effects and the predicted probabilities. Their estimates are in the table above.", strings.Join(omitted, ", "))
+		d.p("Not shown: the columns of %s. A column of a polynomial or spline basis (or a product with one) has no odds ratio of its own, since a unit change of one basis column with the others held fixed is no change of the predictor, and neither has a term whose data column also makes another term (it cannot change with that term held fixed); the effect of such a term is in the marginal effects and the predicted probabilities. Their estimates are in the table above.", strings.Join(omitted, ", "))
 	}
 	var rows [][]string
 	for i, o := range ors {

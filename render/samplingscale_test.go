@@ -132,3 +132,29 @@ report: {timestamp: false}
 		fmt.Sprintf("(%s)", fmt.Sprintf("%.3f", sd)))
 	_ = x
 }
+
+// TestSharedColumnTermHasNoOddsRatio: a term whose data column also makes
+// another term (log(z) beside a polynomial in z) cannot change with that
+// term held fixed, so it gets no "per unit" odds ratio: it is left out and
+// named, like basis columns.
+func TestSharedColumnTermHasNoOddsRatio(t *testing.T) {
+	dir := t.TempDir()
+	samplingScaleData(t, filepath.Join(dir, "d.csv"), 1)
+	md := string(renderSource(t, dir, `version: 1
+data: {file: d.csv}
+outcomes: [{column: y}]
+predictors:
+  - x
+  - {name: zl, column: z, log: {shift: 0}}
+  - {name: zp, column: z, polynomial: {degree: 2}}
+models: {approaches: [cumulative], effects: [parallel]}
+tests: {parallel_lines: [wald]}
+rules:
+  - choose: {by: aic}
+report: {timestamp: false}
+`, 1)["report.md"])
+	hasAll(t, "report.md", md, "Not shown: the columns of zl, zp.", "neither has a term whose data column also makes another term")
+	if strings.Contains(md, "per unit of log(z)") {
+		t.Errorf("report.md reads zl per unit of log(z), which cannot change with zp held fixed")
+	}
+}

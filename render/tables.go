@@ -192,7 +192,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 			}
 			about := "exp(b) of the chosen model with " + lv + "% intervals (boundary 0: the same at every boundary; change: what one unit of the column is; holds_at: where the terms the column's term interacts with have their columns at 0)"
 			if len(omitted) > 0 {
-				about += "; the columns of " + strings.Join(omitted, ", ") + " (polynomial or spline bases) have no odds ratio of their own and are left out"
+				about += "; the columns of " + strings.Join(omitted, ", ") + " (polynomial or spline bases, or terms sharing a data column with another term) have no odds ratio of their own and are left out"
 			}
 			add("odds-ratios", about,
 				[]string{"model", "predictor", "change", "holds_at", "boundary", "categories", "kind", "log_estimate", "log_se", "ratio", "low_" + lv, "high_" + lv}, rows)

@@ -133,6 +133,14 @@ func (or *OutcomeResult) termReadings(k int, per [][]ColumnReading) []ColumnRead
 		}
 		return out
 	}
+	for j, o := range dz.Terms {
+		if j != k && o.Kind != design.KindInteraction && o.Kind != design.KindCategorical && o.Source == t.Source {
+			// Another term made of the same data column: this one cannot
+			// change with that one held fixed, so no unit change of it
+			// alone has a reading (left out, as basis columns are).
+			return []ColumnReading{{Column: t.Columns[0], Change: fmt.Sprintf("%s, whose column %s also makes term %s", expr, dz.Sources[t.Source].Name, o.Name)}}
+		}
+	}
 	r := ColumnReading{Column: t.Columns[0], Alone: true, Change: "per unit of " + expr}
 	switch {
 	case tr.Scale && !math.IsNaN(t.SD):
