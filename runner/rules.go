@@ -168,14 +168,25 @@ func ClusterWarnings(p *plan.Plan) []string {
 }
 
 // BinaryWarnings are the warnings check and run print for each outcome
-// declared with two categories whose plan compares what cannot differ with
-// one boundary: several effect structures or approaches (each link's
+// with two categories whose plan compares what cannot differ with one
+// boundary: several effect structures or approaches (each link's
 // candidates are then one binary regression), parallel-lines tests or a
-// test rule (nothing to test); none otherwise.
-func BinaryWarnings(p *plan.Plan) []string {
+// test rule (nothing to test); none otherwise. With found nil they are
+// those of the outcomes the plan declares with two categories (said before
+// any data are read); with found, the number of categories the data hold
+// for each outcome, those of the outcomes whose categories the plan leaves
+// to the data (said once the data are read).
+func BinaryWarnings(p *plan.Plan, found []int) []string {
 	var out []string
 	for i, o := range p.Outcomes {
-		if len(o.Categories) != 2 {
+		n, where := len(o.Categories), "two categories"
+		if found != nil {
+			if n != 0 || i >= len(found) {
+				continue
+			}
+			n, where = found[i], "two categories in the data"
+		}
+		if n != 2 {
 			continue
 		}
 		var what []string
@@ -191,7 +202,7 @@ func BinaryWarnings(p *plan.Plan) []string {
 			}
 		}
 		if len(what) > 0 {
-			out = append(out, fmt.Sprintf("outcomes[%d] (%s) has two categories, one boundary: %s", i, o.Column, strings.Join(what, "; ")))
+			out = append(out, fmt.Sprintf("outcomes[%d] (%s) has %s, one boundary: %s", i, o.Column, where, strings.Join(what, "; ")))
 		}
 	}
 	return out

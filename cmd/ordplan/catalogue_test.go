@@ -713,6 +713,15 @@ func catalogue(dir string) (items []badInput) {
 				if !strings.Contains(errs, want) {
 					t.Errorf("stderr:\n%s\nwant:\n%s", errs, want)
 				}
+				// The same plan without the categories key: run says it
+				// once the data show two categories.
+				p := filepath.Join(dir, "P34found.yaml")
+				os.WriteFile(p, []byte(edit("  - column: y", "  - column: b", "[a, b]", "[a]", "reject_unconverged: true", "reject_if_test_rejects: {test: lr}")), 0o644)
+				_, e, code := runCLI("run", p, "--out", filepath.Join(dir, "P34found-out"), "--quiet")
+				want = `P34found.yaml: outcomes[0] (b) has two categories in the data, one boundary: every effect structure`
+				if code != exitOK || !strings.Contains(e, want) {
+					t.Errorf("run without categories: exit %d, stderr:\n%s\nwant:\n%s", code, e, want)
+				}
 			}},
 		{id: "P24", name: "fallback not in the plan", args: []string{"check"},
 			plan: edit("{by: aic}", "{by: aic, otherwise: cumulative/stereotype/probit}"), code: 1,

@@ -130,6 +130,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
+	warnFound(p, res, stderr)
 	res.Command = commandLine(append([]string{"ordplan", "run"}, resultArgs(fs, rawArgs, planPath)...))
 	res.Registration = reg
 	dec := runner.BuildDecisions(res)
@@ -249,7 +250,22 @@ func warnPlan(p *plan.Plan, stderr io.Writer) {
 	for _, w := range runner.ClusterWarnings(p) {
 		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
 	}
-	for _, w := range runner.BinaryWarnings(p) {
+	for _, w := range runner.BinaryWarnings(p, nil) {
+		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
+	}
+}
+
+// warnFound prints, on stderr, the warnings of runner.BinaryWarnings for
+// the outcomes whose categories the plan leaves to the data, once res has
+// read them.
+func warnFound(p *plan.Plan, res *runner.Result, stderr io.Writer) {
+	found := make([]int, len(p.Outcomes))
+	for i, or := range res.Outcomes {
+		if i < len(found) && or.Data != nil {
+			found[i] = len(or.Data.Categories)
+		}
+	}
+	for _, w := range runner.BinaryWarnings(p, found) {
 		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
 	}
 }
