@@ -227,8 +227,8 @@ func multiplicitySentence(r *runner.Result) string {
 	tests, outcomes := 0, 0
 	for _, or := range r.Outcomes {
 		n := 0
-		for _, h := range or.Hypotheses {
-			if or.Chosen != nil && h.Model == or.Chosen.ID && h.Test.OK {
+		for i := range or.Hypotheses {
+			if or.InFamily(&or.Hypotheses[i]) {
 				n++
 			}
 		}

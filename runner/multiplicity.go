@@ -54,6 +54,13 @@ func sortedIndex(p []float64) []int {
 	return idx
 }
 
+// InFamily reports whether h, a hypothesis result of or, belongs to the
+// family a multiplicity adjustment takes: tested, with a usable test, in
+// the outcome's chosen model.
+func (or *OutcomeResult) InFamily(h *HypothesisResult) bool {
+	return or.Chosen != nil && h.Model == or.Chosen.ID && h.Test.OK
+}
+
 // adjustHypotheses corrects the p-values of the plan's hypotheses for
 // multiplicity. The family is every hypothesis of every outcome, tested
 // in that outcome's chosen model; tests in the other candidates are
@@ -70,11 +77,10 @@ func adjustHypotheses(an *Analysis, res *Result) {
 	for o, or := range res.Outcomes {
 		for h := range or.Hypotheses {
 			hr := &or.Hypotheses[h]
-			if or.Chosen == nil || hr.Model != or.Chosen.ID {
-				continue
-			}
-			if !hr.Test.OK {
-				left++
+			if !or.InFamily(hr) {
+				if or.Chosen != nil && hr.Model == or.Chosen.ID {
+					left++ // in the chosen model, without a usable test
+				}
 				continue
 			}
 			refs = append(refs, ref{o, h})
