@@ -19,17 +19,7 @@ import (
 func TestImputedSamplingReport(t *testing.T) {
 	dir := t.TempDir()
 	sv := testsurvey.Report.Imputed(rand.New(rand.NewPCG(31, 4)), testsurvey.ImputedOptions{Rows: 240, Sets: 3, Missing: 0.25, Digits: 5})
-	weighted := func(s string) []byte {
-		lines := strings.Split(strings.TrimRight(s, "\n"), "\n")
-		for i := range lines {
-			if i == 0 {
-				lines[i] += ",w"
-			} else {
-				lines[i] += ",0.7"
-			}
-		}
-		return []byte(strings.Join(lines, "\n") + "\n")
-	}
+	weighted := func(s string) []byte { return withWeights(s, func(int) float64 { return 0.7 }) }
 	os.WriteFile(filepath.Join(dir, "orig.csv"), weighted(sv.Orig), 0o644)
 	os.WriteFile(filepath.Join(dir, "stacked.csv"), weighted(sv.Stacked), 0o644)
 	src := `version: 1
@@ -70,17 +60,7 @@ rules:
 func TestImputedSamplingReportSaysNothingPooledByLikelihood(t *testing.T) {
 	dir := t.TempDir()
 	sv := testsurvey.Report.Imputed(rand.New(rand.NewPCG(31, 4)), testsurvey.ImputedOptions{Rows: 240, Sets: 3, Missing: 0.25, Digits: 5})
-	weighted := func(s string) []byte {
-		lines := strings.Split(strings.TrimRight(s, "\n"), "\n")
-		for i := range lines {
-			if i == 0 {
-				lines[i] += ",w"
-			} else {
-				lines[i] += fmt.Sprintf(",%g", 0.5+float64(i%4)/2)
-			}
-		}
-		return []byte(strings.Join(lines, "\n") + "\n")
-	}
+	weighted := func(s string) []byte { return withWeights(s, func(i int) float64 { return 0.5 + float64(i%4)/2 }) }
 	os.WriteFile(filepath.Join(dir, "orig.csv"), weighted(sv.Orig), 0o644)
 	os.WriteFile(filepath.Join(dir, "stacked.csv"), weighted(sv.Stacked), 0o644)
 	src := `version: 1
@@ -149,4 +129,18 @@ rules:
 	if strings.Contains(md, "statistic 0.000") {
 		t.Error("report.md prints a Pulkstenis-Robinson statistic of 0.000 under sampling weights")
 	}
+}
+
+// withWeights is the CSV text s with a column w, w(i) on data line i (the
+// header is line 0).
+func withWeights(s string, w func(i int) float64) []byte {
+	lines := strings.Split(strings.TrimRight(s, "\n"), "\n")
+	for i := range lines {
+		if i == 0 {
+			lines[i] += ",w"
+		} else {
+			lines[i] += fmt.Sprintf(",%g", w(i))
+		}
+	}
+	return []byte(strings.Join(lines, "\n") + "\n")
 }
