@@ -55,42 +55,132 @@ func weightOf(w []float64, i int) float64 {
 // link with observed derivatives: per row the log-tails of the equations
 // kernel.tailRange gives (one exponential each, one log1p for all), the
 // first derivatives -F or 1 - F and the diagonal second derivatives
-// -F (1 - F).
+// -F (1 - F). In sweeps over chunks of adjacentChunk rows (tailRows).
 func (p *problem) tailKernels(c *coefs, lo, rows, order int, a *acc, s *scratch) bool {
-	k, q, es := &p.ker, p.q, s.etaStride
 	y := p.d.y[lo : lo+rows]
 	gs, hp, w := p.kernelColumns(lo, rows, order, s)
+	for off := 0; off < rows; off += adjacentChunk {
+		n := min(adjacentChunk, rows-off)
+		wn := ones[:n]
+		if w != nil {
+			wn = w[off : off+n]
+		}
+		if !p.tailRows(c, off, n, rows, order, y[off:off+n], wn, gs, hp, a, s) {
+			return false
+		}
+	}
+	return true
+}
+
+// tailRows is tailKernels for the n rows of the block (of rows rows) from
+// off on, whose categories are y and weights w, so that only the
+// equations a row enters take an exponential and no branch depends on a
+// row's category: equation by equation, the list of the rows it enters
+// (of weight other than 0; by index arithmetic) and their z = tau - eta,
+// one after the other; e^-|z| of all of them in one loop (expTo); then
+// equation by equation over its list, each row's share of its sums
+// (logitTails.add, selected by pick) and derivatives; then each row's
+// log1p and the log-likelihood in the order of the rows. Each row's sums
+// take its equations in their order: the general kernel's values bit for
+// bit.
+func (p *problem) tailRows(c *coefs, off, n, rows, order int, y []int, w, gs, hp []float64, a *acc, s *scratch) bool {
+	k, q, es := &p.ker, p.q, s.etaStride
+	t, ix := s.kernelTemp(2*q+3, q+2, n)
+	z, e := t[:q*n], t[q*n:2*q*n]
+	sh, tt, lp := t[2*q*n:][:n], t[(2*q+1)*n:][:n], t[(2*q+2)*n:][:n]
+	// Each row's equations: mlo[i] and the next neq[i] (none for a row of
+	// weight 0).
+	mlo, neq, list := ix[:n], ix[n:2*n], ix[2*n:]
 	for i, yi := range y {
-		wi := weightOf(w, i)
+		lo, hi := k.tailRange(yi)
+		mlo[i], neq[i] = lo, (hi-lo)&^-b2i(w[i] == 0)
+	}
+	// The lists: equation m's rows at list[start[m]:start[m+1]], their z
+	// at the same places.
+	var buf [17]int
+	start := buf[:]
+	if q >= len(buf) {
+		start = make([]int, q+1)
+	}
+	cnt := 0
+	for m := range q {
+		start[m] = cnt
+		eta, tau := s.eta[m*es+off:][:n], c.tau[m]
+		cnt = tailList(list, z, cnt, mlo, neq, eta, tau, m)
+	}
+	start[q] = cnt
+	expTo(e[:cnt], z[:cnt], true)
+	clear(sh)
+	clear(tt)
+	for m := range q {
+		b, f := start[m], start[m+1]
+		var gm, hm []float64
+		if order >= 1 {
+			gm = gs[m*rows+off:][:n]
+		}
+		if order >= 2 {
+			hm = hp[p.pairAt[m*q+m]*rows+off:][:n]
+		}
+		tailAdd(sh, tt, gm, hm, w, y, list[b:f], z[b:f], e[b:f], m)
+	}
+	for i, v := range tt {
+		lp[i] = -sh[i] - fastLog1p(v)
+	}
+	for i, v := range lp {
+		wi := w[i]
 		if wi == 0 {
 			continue
 		}
-		mlo, mhi := k.tailRange(yi)
-		var t logitTails
-		for m := mlo; m < mhi; m++ {
-			pt := newLogitPoint(c.tau[m] - s.eta[m*es+i])
-			upper := m < yi
-			t.add(pt, upper)
-			// As the general kernel forms them: 0 plus the derivative.
-			if order >= 1 {
-				d1 := pt.Fc
-				if upper {
-					d1 = -pt.F
-				}
-				gs[m*rows+i] = wi * (0 + d1)
-			}
-			if order >= 2 {
-				hp[p.pairAt[m*q+m]*rows+i] = wi * (0 + -pt.F*pt.Fc)
-			}
-		}
-		lp := t.sum()
-		if math.IsInf(lp, -1) || math.IsNaN(lp) {
+		if math.IsInf(v, -1) || math.IsNaN(v) {
 			return false
 		}
-		a.ll += wi * lp
-		a.minLP = min(a.minLP, lp)
+		a.ll += wi * v
+		a.minLP = min(a.minLP, v)
 	}
 	return true
+}
+
+// tailList appends to list (from cnt on) the rows that enter equation m
+// (mlo <= m < mlo + neq), and their z = tau - eta to z, without a branch;
+// it returns the new count.
+func tailList(list []int, z []float64, cnt int, mlo, neq []int, eta []float64, tau float64, m int) int {
+	mlo, neq = mlo[:len(eta)], neq[:len(eta)]
+	for i, v := range eta {
+		list[cnt] = i
+		z[cnt] = tau - v
+		cnt += b2i(uint(m-mlo[i]) < uint(neq[i]))
+	}
+	return cnt
+}
+
+// tailAdd adds equation m's log-tail (logitTails.add) to the sums sh and
+// tt of the rows of its list (with their z and e^-|z|), and sets their
+// first derivatives (g: -F above the row's category, else 1 - F) and
+// second derivatives (h: -F (1 - F)), each weighted by the row's weight,
+// as the general kernel forms them (0 plus the derivative); nil g or h:
+// not asked for.
+func tailAdd(sh, tt, g, h, w []float64, y, list []int, z, e []float64, m int) {
+	z, e = z[:len(list)], e[:len(list)]
+	for j, i := range list {
+		// logitPointOf, written out so that the loop makes no call.
+		zj, ej := z[j], e[j]
+		fa := 1 / (1 + ej)
+		fb := ej * fa
+		neg := zj < 0
+		F, Fc := pick(neg, fb, fa), pick(neg, fa, fb)
+		upper := m < y[i]
+		// max(x, 0) of x = z or -z, as a selection: x itself above 0 and
+		// for NaN, else +0.
+		x := pick(upper, zj, -zj)
+		sh[i] += pick(!(x <= 0), x, 0)
+		tt[i] += ej + tt[i]*ej
+		if g != nil {
+			g[i] = w[i] * (0 + pick(upper, -F, Fc))
+		}
+		if h != nil {
+			h[i] = w[i] * (0 + -F*Fc)
+		}
+	}
 }
 
 // adjacentKernels is blockKernels for an adjacent model under the logit
@@ -169,7 +259,7 @@ var ones = func() (o [adjacentChunk]float64) {
 //     of each, the first and second derivatives.
 func (p *problem) adjacentRows(c *coefs, off, n, rows, order int, y []int, w []float64, a *acc, s *scratch) bool {
 	q, es := p.q, s.etaStride
-	t, top := s.kernelTemp(2*q+4, n)
+	t, top := s.kernelTemp(2*q+4, 1, n)
 	top = top[:n]
 	T, P := t[:(q+1)*n], t[(q+1)*n:2*(q+1)*n]
 	S, lg := t[2*(q+1)*n:][:n], t[(2*q+3)*n:][:n]
@@ -372,16 +462,16 @@ func (p *problem) binaryKernels(c *coefs, lo, rows, order int, a *acc, s *scratc
 }
 
 // kernelTemp returns n columns of rows values of the scratch's temporary
-// memory, one after the other, and room for two lists of rows (not
+// memory, one after the other, and ni columns of rows whole numbers (not
 // cleared).
-func (s *scratch) kernelTemp(n, rows int) ([]float64, []int) {
+func (s *scratch) kernelTemp(n, ni, rows int) ([]float64, []int) {
 	if len(s.kt) < n*rows {
 		s.kt = make([]float64, n*rows)
 	}
-	if len(s.ki) < 2*rows {
-		s.ki = make([]int, 2*rows)
+	if len(s.ki) < ni*rows {
+		s.ki = make([]int, ni*rows)
 	}
-	return s.kt[:n*rows], s.ki[:2*rows]
+	return s.kt[:n*rows], s.ki[:ni*rows]
 }
 
 // b2i is 1 for true, 0 for false (a flag, not a branch).
@@ -409,7 +499,7 @@ func (p *problem) cumulativeLogitKernels(c *coefs, lo, rows, order int, a *acc, 
 	q, es := p.q, s.etaStride
 	y := p.d.y[lo : lo+rows]
 	gs, hp, w := p.kernelColumns(lo, rows, order, s)
-	t, lists := s.kernelTemp(5, rows)
+	t, lists := s.kernelTemp(5, 2, rows)
 	n := len(y)
 	za, zb, ea, eb, lp := t[:n], t[n:2*n], t[2*n:3*n], t[3*n:4*n], t[4*n:5*n]
 	// lists[:nlo] the lowest category, lists[n-nhi:n] the highest,
