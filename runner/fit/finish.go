@@ -241,12 +241,16 @@ func (src *source) certify(r *Result, ly *layout, st newtonState, info []float64
 	if cond > 1e5 && rayRises(src.loglik, st.theta, st.ll, minVec, info) {
 		return true, minVec
 	}
-	if src.sd != nil && suspectDivergence(ly, st.theta, src.sd) {
+	if src.sd == nil {
+		return false, minVec
+	}
+	if large := suspectDivergence(ly, st.theta, src.sd); large != nil {
 		// Large coefficients: look for a direction along which the
 		// likelihood keeps rising (separation that leaves the scaled
 		// information well conditioned): the weakest direction, each
-		// parameter's axis, and the estimates themselves.
-		if v := risingDirection(src.loglik, st.theta, st.ll, minVec, info); v != nil {
+		// parameter's axis, the estimates themselves, and the large
+		// estimates alone.
+		if v := risingDirection(src.loglik, st.theta, st.ll, minVec, info, large); v != nil {
 			return true, v
 		}
 	}
@@ -408,30 +412,34 @@ func rayRises(loglik evalFunc, theta []float64, ll float64, vec, info []float64)
 	return false
 }
 
-// suspectDivergence reports whether some coefficient is implausibly large:
-// a slope moving the linear predictor by more than 10 per standard
-// deviation of its predictor, or a cutpoint beyond 15 in absolute value.
-func suspectDivergence(ly *layout, theta, sd []float64) bool {
+// suspectDivergence reports which coefficients are implausibly large (nil
+// when none is): a slope moving the linear predictor by more than 10 per
+// standard deviation of its predictor, or a cutpoint beyond 15 in
+// absolute value.
+func suspectDivergence(ly *layout, theta, sd []float64) []bool {
+	var large []bool
 	for i, pa := range ly.params {
 		v := math.Abs(theta[i])
-		switch pa.kind {
-		case pCut:
-			if v > 15 {
-				return true
+		switch {
+		case pa.kind == pCut && v > 15, (pa.kind == pParallel || pa.kind == pFree || pa.kind == pGamma) && v*sd[pa.k] > 10:
+			if large == nil {
+				large = make([]bool, len(theta))
 			}
-		case pParallel, pFree, pGamma:
-			if v*sd[pa.k] > 10 {
-				return true
-			}
+			large[i] = true
 		}
 	}
-	return false
+	return large
 }
 
 // risingDirection tries the weakest direction of the information, each
-// parameter's axis and the direction of the estimates; it returns the first
-// (in scaled coordinates) along which the log-likelihood does not fall.
-func risingDirection(loglik evalFunc, theta []float64, ll float64, minVec, info []float64) []float64 {
+// parameter's axis, the direction of the estimates and that of the large
+// estimates alone (large: suspectDivergence's); it returns the first (in
+// scaled coordinates) along which the log-likelihood does not fall. The
+// last finds a separation confined to some equations while others have
+// finite estimates (a stage model whose first equation a predictor
+// separates): doubling every estimate lowers the likelihood through the
+// finite ones, doubling the diverging ones alone does not.
+func risingDirection(loglik evalFunc, theta []float64, ll float64, minVec, info []float64, large []bool) []float64 {
 	P := len(theta)
 	if minVec != nil && rayRises(loglik, theta, ll, minVec, info) {
 		return minVec
@@ -443,14 +451,23 @@ func risingDirection(loglik evalFunc, theta []float64, ll float64, minVec, info 
 			return e
 		}
 	}
-	// The estimates scaled up: complete separation.
-	a := loglik(addScaled(theta, theta, 1), 0)
-	if !a.bad && a.ll >= ll-1e-9*math.Max(1, math.Abs(ll)) {
-		v := make([]float64, P)
-		for i := range v {
-			v[i] = theta[i] * math.Sqrt(math.Max(info[i*P+i], 0))
+	// The estimates scaled up: complete separation; then the large
+	// estimates alone.
+	for _, only := range [][]bool{nil, large} {
+		dir := make([]float64, P)
+		for i := range dir {
+			if only == nil || only[i] {
+				dir[i] = theta[i]
+			}
 		}
-		return v
+		a := loglik(addScaled(theta, dir, 1), 0)
+		if !a.bad && a.ll >= ll-1e-9*math.Max(1, math.Abs(ll)) {
+			v := make([]float64, P)
+			for i := range v {
+				v[i] = dir[i] * math.Sqrt(math.Max(info[i*P+i], 0))
+			}
+			return v
+		}
 	}
 	return nil
 }

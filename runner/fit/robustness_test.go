@@ -303,6 +303,43 @@ func robClose(got, want, rel, abs float64) bool {
 	return math.Abs(got-want) <= rel*math.Abs(want)+abs
 }
 
+// Separation confined to one equation while the others have finite
+// estimates: 12 rows (a seeded invented study), where x, g and z separate
+// category 1 from the others. R's glm of (y == 1) ~ x + g + z reaches
+// fitted probabilities 0 and 1 and a log-likelihood of 0 (R 4, "fitted
+// probabilities numerically 0 or 1 occurred"), and its glm of (y == 2) on
+// the rows with y >= 2 has log-likelihood -3.185553: the forward stage
+// model's supremum. Its first equation's estimates grow large (tau[1]
+// near -96) while doubling every estimate lowers the likelihood through
+// the second equation's finite ones; the model with free slopes in every
+// comparison was reported converged with odds ratios near 1e66.
+func TestSeparationInOneEquation(t *testing.T) {
+	rows := [][4]float64{ // y, x, g (0 = a, 1 = b), z
+		{2, -0.256, 0, 0.07}, {3, 0.511, 1, 0.58}, {1, 0.093, 1, 0.07}, {2, 0.414, 1, 0.06},
+		{2, 1.335, 0, 0.58}, {3, -0.458, 0, 0.05}, {2, -0.137, 0, 0.57}, {2, 0.541, 0, 0.1},
+		{2, 0.172, 0, 0.56}, {2, 0.419, 1, 0.68}, {1, -0.521, 1, 0.36}, {2, 1.221, 0, 0.7},
+	}
+	d := &Data{J: 3, Predictors: []string{"x", "g.b", "z"}}
+	for _, r := range rows {
+		d.Y = append(d.Y, int(r[0])-1)
+		d.X = append(d.X, r[1], r[2], r[3])
+	}
+	for _, c := range []Comparison{Cumulative, Stage, Adjacent} {
+		m := Model{Comparison: c, Link: Logit, Effects: []Effect{Nonparallel, Nonparallel, Nonparallel}}
+		r, err := Fit(d, m, Options{Workers: 1})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if r.Status != StatusNoFiniteMaximum || r.Separation == nil || !math.IsNaN(r.LogLik) {
+			t.Errorf("%s: status %s, log-likelihood %v, message %q", m.Name(), r.Status, r.LogLik, r.Message)
+			continue
+		}
+		if c == Stage && !strings.Contains(r.Message, "approaches -3.18555") {
+			t.Errorf("%s: the supremum is R's second-stage glm log-likelihood -3.185553: %s", m.Name(), r.Message)
+		}
+	}
+}
+
 // A fit stopped by the iteration limit says so in its status and message
 // and carries no log-likelihood.
 func TestRobustnessIterationLimit(t *testing.T) {
