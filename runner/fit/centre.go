@@ -1,6 +1,11 @@
 package fit
 
-import "math"
+import (
+	"errors"
+	"fmt"
+	"math"
+	"slices"
+)
 
 // centreAbove: a predictor column whose weighted mean lies further from
 // zero than this many of its standard deviations is fitted centred (its
@@ -26,16 +31,68 @@ type centring struct {
 // centringOf is the centring that the rows of d need, from the predictors'
 // weighted means and standard deviations (nil: none).
 func centringOf(d *Data, mean, sd []float64) *centring {
-	var c *centring
-	for k := 0; k < d.width() && k < len(mean); k++ {
+	return centringBy(shiftOf(mean[:min(d.width(), len(mean))], sd), len(d.Predictors))
+}
+
+// shiftOf is the shift of each predictor of the given weighted means and
+// standard deviations: its mean when that lies beyond centreAbove
+// standard deviations from zero, else 0 (nil: no predictor is shifted).
+// It is the one rule of centring, for the rows in one place (the rank
+// check's moments) and for fits summed over parts (the whole data's
+// Spread).
+func shiftOf(mean, sd []float64) []float64 {
+	var shift []float64
+	for k := range mean {
 		if math.Abs(mean[k]) > centreAbove*sd[k] {
-			if c == nil {
-				c = &centring{shift: make([]float64, len(d.Predictors))}
+			if shift == nil {
+				shift = make([]float64, len(mean))
 			}
-			c.shift[k] = mean[k]
+			shift[k] = mean[k]
 		}
 	}
+	return shift
+}
+
+// centringBy is the centring of K predictors by shift (shorter: the
+// predictors after it unshifted; nil when it shifts none).
+func centringBy(shift []float64, K int) *centring {
+	if !slices.ContainsFunc(shift, func(v float64) bool { return v != 0 }) {
+		return nil
+	}
+	c := &centring{shift: make([]float64, K)}
+	copy(c.shift, shift)
 	return c
+}
+
+// Shift is the shift of each predictor that a fit of all the rows s
+// summarizes runs centred by (nil: none): the rule a fit of the rows in
+// one place applies to its own rank check's moments, here applied to the
+// weighted means and standard deviations of s. Fits summed over parts
+// take it as Whole.Shift.
+func (s *Spread) Shift() []float64 {
+	sd := make([]float64, len(s.SS))
+	for k := range sd {
+		sd[k] = math.Sqrt(s.SS[k] / s.Weight)
+	}
+	return shiftOf(s.Mean, sd)
+}
+
+// Centred is d with the predictors less shift (one value per predictor
+// or fewer, the later ones unshifted; a copy of X, the other arrays
+// shared): the rows a fit summed over parts evaluates when its
+// Whole.Shift is set.
+func (d *Data) Centred(shift []float64) (*Data, error) {
+	if len(shift) > d.width() {
+		return nil, fmt.Errorf("a shift of %d predictors for data with %d", len(shift), d.width())
+	}
+	if !finite(shift) {
+		return nil, errors.New("a shift that is not a finite number")
+	}
+	c := centringBy(shift, len(d.Predictors))
+	if c == nil {
+		return d, nil
+	}
+	return c.data(d), nil
 }
 
 // data is d with the shifted columns of X centred (a copy of X; the other

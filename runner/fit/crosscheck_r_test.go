@@ -436,7 +436,9 @@ func testRTwoCategories(t *testing.T) {
 // identity of the linear predictor; for the logit also on the column as it
 // is): log-likelihood, estimates in the data's units, observed- and
 // expected-information errors. Without centring the fit reported no finite
-// maximum there.
+// maximum there. The fit summed over three parts of the rows (as queue
+// workers sum it, centred by the whole data's shift) against the same
+// values.
 func testRFarFromZero(t *testing.T) {
 	a := newAgreement(t)
 	defer a.report()
@@ -459,6 +461,10 @@ func testRFarFromZero(t *testing.T) {
 			a.errors(label+" observed-information errors", r.ParamNames, r.StdErrors, seObs, tolEst)
 			re := mustFit(t, label, d, m, fit.Options{Covariance: fit.Expected})
 			a.errors(label+" expected-information errors (glm's)", r.ParamNames, re.StdErrors, vals.Get(t, prefix+".se_glm"), tolEst)
+			p := overParts(t, label+" over 3 parts", d, m, 3)
+			a.logLik(label+" over 3 parts", p.LogLik, vals.Scalar(t, prefix+".ll"))
+			a.est(label+" over 3 parts", p.ParamNames, p.Estimates, theta, seObs, tolEst)
+			a.errors(label+" over 3 parts, observed-information errors", p.ParamNames, p.StdErrors, seObs, tolEst)
 			if l.link == fit.Logit {
 				label += " on x1 as it is"
 				a.logLik(label, r.LogLik, vals.Scalar(t, "far.raw_logit.ll"))
@@ -467,6 +473,51 @@ func testRFarFromZero(t *testing.T) {
 			}
 		}
 	}
+}
+
+// overParts fits m on d summed over nparts parts of its rows, as queue
+// workers sum it: the whole data's spread, its shift (Spread.Shift), each
+// part centred by it (Data.Centred) and FitFromSums.
+func overParts(t *testing.T, label string, d *fit.Data, m fit.Model, nparts int) *fit.Result {
+	t.Helper()
+	K, n := len(d.Predictors), d.N()
+	w := fit.Whole{J: d.J, Predictors: d.Predictors, Categories: d.Categories, Counts: make([]float64, d.J), Rows: n, Spread: &fit.Spread{}}
+	var parts []*fit.Data
+	for p := 0; p < nparts; p++ {
+		lo, hi := p*n/nparts, (p+1)*n/nparts
+		part := &fit.Data{J: d.J, Predictors: d.Predictors, Categories: d.Categories, Y: d.Y[lo:hi], X: d.X[lo*K : hi*K]}
+		w.Spread.Merge(fit.SpreadOf(part))
+		parts = append(parts, part)
+	}
+	for _, y := range d.Y {
+		w.Counts[y]++
+	}
+	w.Shift = w.Spread.Shift()
+	for i, p := range parts {
+		c, err := p.Centred(w.Shift)
+		if err != nil {
+			t.Fatal(err)
+		}
+		parts[i] = c
+	}
+	r, err := fit.FitFromSums(w, m, func(theta []float64, order int) (*fit.Sums, error) {
+		total := &fit.Sums{}
+		for _, p := range parts {
+			s, err := fit.PartitionSums(p, m, theta, order)
+			if err != nil {
+				return nil, err
+			}
+			total.Add(s)
+		}
+		return total, nil
+	}, nil, fit.Options{})
+	if err != nil {
+		t.Fatalf("%s: %v", label, err)
+	}
+	if !r.OK() {
+		t.Fatalf("%s: %s: %s", label, r.Status, r.Message)
+	}
+	return r
 }
 
 // simFarFromZero is seeded data of our own: 400 rows, x1 = 1e6 + N(0,1)

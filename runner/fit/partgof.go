@@ -418,7 +418,9 @@ type ScoreParts interface {
 	Ask(q *ScoreQuery) ([]*ScoreAnswer, error)
 	// Sums and Diag are PartitionSums and PartitionDiagnostics of model m
 	// summed over the parts, each part's rows with their indicators
-	// under cut's cuts (ScoreQuery.Indicators).
+	// under cut's cuts (ScoreQuery.Indicators), then centred by the
+	// Whole.Shift of the fit's whole data (Data.Centred; the indicators
+	// are never shifted), theta in those centred coordinates.
 	Sums(cut *ScoreQuery, m Model, theta []float64, order int) (*Sums, error)
 	Diag(cut *ScoreQuery, m Model, theta []float64) (int, float64, error)
 }

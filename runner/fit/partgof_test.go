@@ -11,6 +11,7 @@ import (
 // held here, as workers answer them for their parts.
 type localParts struct {
 	parts []*Data
+	shift []float64 // Whole.Shift
 	asked int // queries of the cut and the table
 	keys  int // score keys sent by the parts
 }
@@ -38,6 +39,9 @@ func (l *localParts) Sums(cut *ScoreQuery, m Model, theta []float64, order int) 
 	total := &Sums{}
 	for _, p := range l.parts {
 		d, err := cut.Indicators(p)
+		if err == nil {
+			d, err = d.Centred(l.shift)
+		}
 		if err != nil {
 			return nil, err
 		}
@@ -54,6 +58,9 @@ func (l *localParts) Diag(cut *ScoreQuery, m Model, theta []float64) (int, float
 	neg, minP := 0, math.Inf(1)
 	for _, p := range l.parts {
 		d, err := cut.Indicators(p)
+		if err == nil {
+			d, err = d.Centred(l.shift)
+		}
 		if err != nil {
 			return 0, 0, err
 		}
@@ -91,7 +98,7 @@ func TestLipsitzOverPartsEqualsLocal(t *testing.T) {
 			}
 			for _, fine := range []bool{false, true} {
 				parts, w := splitParts(&d, 3)
-				lp := &localParts{parts: parts}
+				lp := &localParts{parts: parts, shift: w.Shift}
 				b, g := rangeBuckets, gatherBelow
 				if fine {
 					// Small ranges and buckets: several rounds of counts.
@@ -151,7 +158,7 @@ func TestLipsitzOverPartsTies(t *testing.T) {
 			t.Fatal(err)
 		}
 		parts, w := splitParts(d, 4)
-		got, err := LipsitzOverParts(r, w, &localParts{parts: parts}, 0, Options{})
+		got, err := LipsitzOverParts(r, w, &localParts{parts: parts, shift: w.Shift}, 0, Options{})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -187,7 +194,7 @@ func TestLipsitzOverPartsDiscreteSendsFewKeys(t *testing.T) {
 			t.Fatal(err)
 		}
 		parts, w := splitParts(&d, 4)
-		lp := &localParts{parts: parts}
+		lp := &localParts{parts: parts, shift: w.Shift}
 		got, err := LipsitzOverParts(r, w, lp, 0, Options{})
 		if err != nil {
 			t.Fatal(err)
@@ -271,11 +278,11 @@ func TestEmptyPartChangesNothing(t *testing.T) {
 	if n, mp, err := PartitionDiagnostics(empty, m, r.Estimates); err != nil || n != 0 || !math.IsInf(mp, 1) {
 		t.Errorf("diagnostics of an empty part: %d rows, smallest probability %v, %v; want 0, +Inf", n, mp, err)
 	}
-	base, err := LipsitzOverParts(r, w, &localParts{parts: parts}, 0, Options{})
+	base, err := LipsitzOverParts(r, w, &localParts{parts: parts, shift: w.Shift}, 0, Options{})
 	if err != nil {
 		t.Fatal(err)
 	}
-	got, err := LipsitzOverParts(r, w, &localParts{parts: with}, 0, Options{})
+	got, err := LipsitzOverParts(r, w, &localParts{parts: with, shift: w.Shift}, 0, Options{})
 	if err != nil {
 		t.Fatalf("with an empty part: %v", err)
 	}

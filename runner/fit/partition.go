@@ -84,6 +84,13 @@ type Whole struct {
 	// it, a fit whose coefficients grow implausibly large is probed for a
 	// direction of rising likelihood, as a local fit is.
 	Spread *Spread
+	// Shift is the shift of each predictor (Spread.Shift of the whole
+	// data; nil: none; fewer values than predictors: the later ones
+	// unshifted). With it, FitFromSums runs centred, as a fit of the rows
+	// in one place does: it asks for the sums of the rows with their
+	// predictors less Shift (Data.Centred) at parameters in those centred
+	// coordinates, and gives the result in the data's units.
+	Shift []float64
 	// Notes are remarks on the whole data the user must see (a value of a
 	// subset condition no row holds).
 	Notes []string
@@ -183,7 +190,10 @@ func (s *Spread) SD() []float64 {
 // FitFromSums fits model m by the Newton engine with the log-likelihood
 // summed by sums (for example over partitions held by workers). diag, when
 // not nil, returns the negative-probability row count and the smallest
-// fitted probability at the estimates. Models with constrained predictors
+// fitted probability at the estimates. With w.Shift set, sums and diag
+// are asked about the rows centred by it, at parameters in centred
+// coordinates (see Whole.Shift), and opt.Start and the result are in the
+// data's units. Models with constrained predictors
 // are refused (their multi-start search needs the rows). The result
 // matches a local Fit to rounding.
 func FitFromSums(w Whole, m Model, sums func(theta []float64, order int) (*Sums, error), diag func(theta []float64) (int, float64, error), opt Options) (*Result, error) {
@@ -210,6 +220,13 @@ func FitFromSums(w Whole, m Model, sums func(theta []float64, order int) (*Sums,
 	}
 	if opt.Covariance == Expected {
 		return nil, inputErr("partitioned fits give observed-information errors only (covariance %q): the expected information needs the rows", Observed)
+	}
+	if len(w.Shift) > len(w.Predictors) || !finite(w.Shift) {
+		return nil, inputErr("the whole data's shift has %d values for %d predictors, or a value that is not a finite number", len(w.Shift), len(w.Predictors))
+	}
+	c := centringBy(w.Shift, len(w.Predictors))
+	if c != nil && opt.Start != nil {
+		opt.Start = c.start(m, w.J, w.Predictors, opt.Start)
 	}
 	if opt.MaxIter <= 0 {
 		opt.MaxIter = 200
@@ -256,6 +273,9 @@ func FitFromSums(w Whole, m Model, sums func(theta []float64, order int) (*Sums,
 	r, err := finish(src, m, ly, st, opt)
 	if err == nil && evalErr != nil {
 		err = evalErr
+	}
+	if c != nil {
+		c.restore(r)
 	}
 	return r, err
 }

@@ -2,6 +2,7 @@ package fit
 
 import (
 	"math"
+	"slices"
 	"testing"
 )
 
@@ -30,6 +31,7 @@ func splitParts(d *Data, nparts int) ([]*Data, Whole) {
 	for _, p := range parts {
 		w.Spread.Merge(SpreadOf(p))
 	}
+	w.Shift = w.Spread.Shift()
 	return parts, w
 }
 
@@ -38,6 +40,13 @@ func splitParts(d *Data, nparts int) ([]*Data, Whole) {
 func partitioned(t *testing.T, d *Data, m Model, nparts int, opt Options) *Result {
 	t.Helper()
 	parts, w := splitParts(d, nparts)
+	for i, p := range parts {
+		c, err := p.Centred(w.Shift)
+		if err != nil {
+			t.Fatal(err)
+		}
+		parts[i] = c
+	}
 	sums := func(theta []float64, order int) (*Sums, error) {
 		total := &Sums{}
 		for _, p := range parts {
@@ -133,6 +142,65 @@ func TestLocalAndPartitionedFailuresSayTheSame(t *testing.T) {
 		}
 		if local.Message != part.Message {
 			t.Errorf("%s: the messages differ:\nlocal:       %s\npartitioned: %s", c.name, local.Message, part.Message)
+		}
+	}
+}
+
+// A fit summed over parts of data whose predictors lie far from zero for
+// their spread runs centred as a fit of the rows in one place does, and
+// gives its result: the published gsswarm data (Long 1997, ch. 5; checked
+// against the published values in reference_test.go) with age and ed
+// moved by 1e6, whose fit in one place TestPredictorFarFromZero checks by
+// the linear predictor's identity against the fit of the data as
+// published (and the far-from-zero check of TestAgainstR against glm).
+// Summed over parts without centring, these fits reported no finite
+// maximum. The Lipsitz test over the parts gives the test of the rows in
+// one place too.
+func TestPartitionedFarFromZero(t *testing.T) {
+	d := gssData(t)
+	far := *d
+	far.X = slices.Clone(d.X)
+	K := len(d.Predictors)
+	for i := range far.X {
+		if name := d.Predictors[i%K]; name == "age" || name == "ed" {
+			far.X[i] += 1e6
+		}
+	}
+	if _, w := splitParts(&far, 3); len(w.Shift) != K || w.Shift[3] == 0 || w.Shift[4] == 0 || w.Shift[0] != 0 {
+		t.Fatalf("shift %v: want age and ed shifted alone", w.Shift)
+	}
+	models := []Model{metaModels[0], metaModels[1],
+		{Comparison: Stage, Backward: true, Link: Cloglog, Effects: []Effect{Parallel, Parallel, Parallel, Nonparallel, Nonparallel, Parallel}},
+		{Comparison: Adjacent, Link: Cauchy, Effects: allEffects(K, Parallel)},
+	}
+	for _, m := range models {
+		want := fitOK(t, &far, m)
+		got := partitioned(t, &far, m, 3, Options{})
+		if !got.OK() {
+			t.Fatalf("%s over parts: %s: %s", m.Name(), got.Status, got.Message)
+		}
+		if math.Abs(got.LogLik-want.LogLik) > 1e-9*math.Abs(want.LogLik) {
+			t.Errorf("%s: log-likelihood %.12f, want %.12f", m.Name(), got.LogLik, want.LogLik)
+		}
+		for i, name := range got.ParamNames {
+			if math.Abs(got.Estimates[i]-want.Estimates[i]) > 1e-6*math.Max(want.StdErrors[i], 1e-3*math.Abs(want.Estimates[i])) {
+				t.Errorf("%s %s: %.12g, want %.12g", m.Name(), name, got.Estimates[i], want.Estimates[i])
+			}
+			if math.Abs(got.StdErrors[i]-want.StdErrors[i]) > 1e-6*want.StdErrors[i] {
+				t.Errorf("%s %s: error %.12g, want %.12g", m.Name(), name, got.StdErrors[i], want.StdErrors[i])
+			}
+		}
+		local, err := LipsitzTest(&far, want, 0, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		parts, w := splitParts(&far, 3)
+		lz, err := LipsitzOverParts(got, w, &localParts{parts: parts, shift: w.Shift}, 0, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !local.Test.OK || lz.Test.OK != local.Test.OK || math.Abs(lz.Test.Chi2-local.Test.Chi2) > 1e-6*local.Test.Chi2 {
+			t.Errorf("%s: Lipsitz over parts %+v, in one place %+v", m.Name(), lz.Test, local.Test)
 		}
 	}
 }

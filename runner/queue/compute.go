@@ -4,8 +4,10 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
+	"math"
 	"os"
 	"runtime/debug"
+	"strconv"
 	"sync"
 
 	"ordplan/runner"
@@ -69,9 +71,11 @@ func (w *Worker) compute(ctx context.Context, t *Task) (r *Reply) {
 }
 
 // partition returns the fit data of a partition, loaded once per worker;
-// with cut, and the task's Score set, its rows with the group indicators
-// of that cut, made once per worker too.
-func (w *Worker) partition(ctx context.Context, p *PartitionTask, cut bool) (*fit.Data, error) {
+// with rows (the rows of sums and diagnostics), its rows with the group
+// indicators of the task's cut when Score is set, and centred by the
+// task's Shift when it is set, made once per worker too (the scores of
+// KindScores are of the rows as read).
+func (w *Worker) partition(ctx context.Context, p *PartitionTask, rows bool) (*fit.Data, error) {
 	path, err := w.cache.path(ctx, w.Client.data, p.DataHash, p.Name, w.Limits.DataBytes)
 	if err != nil {
 		return nil, err
@@ -81,18 +85,24 @@ func (w *Worker) partition(ctx context.Context, p *PartitionTask, cut bool) (*fi
 		return nil, err
 	}
 	key := p.DataHash + "\n" + string(opts)
-	if cut && p.Score != nil {
+	derived := key
+	if rows && p.Score != nil {
 		q, err := json.Marshal(p.Score)
 		if err != nil {
 			return nil, err
 		}
-		d, err := w.partition(ctx, p, false)
-		if err != nil {
-			return nil, err
-		}
-		return w.parts.get(key+"\n"+string(q), func() (*fit.Data, error) { return p.Score.Indicators(d) })
+		derived += "\n" + string(q)
 	}
-	return w.parts.get(key, func() (*fit.Data, error) {
+	if rows && len(p.Shift) > 0 {
+		derived += "\nshift"
+		for _, v := range p.Shift {
+			derived += " " + strconv.FormatUint(math.Float64bits(v), 16)
+		}
+	}
+	if d, ok := w.parts.lookup(derived); ok {
+		return d, nil
+	}
+	d, err := w.parts.get(key, func() (*fit.Data, error) {
 		f, err := os.Open(path)
 		if err != nil {
 			return nil, fmt.Errorf("partition %s: %v", p.Name, err)
@@ -109,6 +119,20 @@ func (w *Worker) partition(ctx context.Context, p *PartitionTask, cut bool) (*fi
 		}
 		return runner.FitData(ds), nil
 	})
+	if err != nil || derived == key {
+		return d, err
+	}
+	return w.parts.get(derived, func() (*fit.Data, error) {
+		if rows && p.Score != nil {
+			if d, err = p.Score.Indicators(d); err != nil {
+				return nil, err
+			}
+		}
+		if rows && len(p.Shift) > 0 {
+			return d.Centred(p.Shift)
+		}
+		return d, nil
+	})
 }
 
 // partitionCache keeps the last few loaded partitions.
@@ -121,6 +145,14 @@ type partitionCache struct {
 
 func newPartitionCache(size int) *partitionCache {
 	return &partitionCache{size: size, items: map[string]*fit.Data{}}
+}
+
+// lookup is the item under key, if the cache holds it.
+func (pc *partitionCache) lookup(key string) (*fit.Data, bool) {
+	pc.mu.Lock()
+	defer pc.mu.Unlock()
+	d, ok := pc.items[key]
+	return d, ok
 }
 
 func (pc *partitionCache) get(key string, load func() (*fit.Data, error)) (*fit.Data, error) {

@@ -38,6 +38,10 @@ type PartitionTask struct {
 	Model       fit.Model
 	Theta       []float64
 	Order       int // 0 log-likelihood, 1 and score, 2 and second derivatives
+	// Shift: with KindSums and KindDiag, the rows' predictors less these
+	// values (the whole data's fit.Whole.Shift; Theta is then in centred
+	// coordinates).
+	Shift []float64
 	// Score is the question of KindScores; with KindSums and KindDiag, the
 	// cut whose group indicators the rows get (Model is then the model
 	// with them).

@@ -175,7 +175,7 @@ func (pr *partRun) sums(m fit.Model, cut *fit.ScoreQuery) func(theta []float64, 
 			return nil, err
 		}
 		replies, err := pr.eval(KindSums, evalID(key, KindSums, theta, order), m.Name(), fmt.Sprintf("%s, order %d", KindSums, order), func(PartitionRef) *PartitionTask {
-			return &PartitionTask{Model: m, Theta: append([]float64(nil), theta...), Order: order, Score: cut}
+			return &PartitionTask{Model: m, Theta: append([]float64(nil), theta...), Order: order, Score: cut, Shift: pr.whole.Shift}
 		})
 		if err != nil {
 			return nil, err
@@ -200,7 +200,7 @@ func (pr *partRun) diag(m fit.Model, cut *fit.ScoreQuery) func(theta []float64) 
 			return 0, 0, err
 		}
 		replies, err := pr.eval(KindDiag, evalID(key, KindDiag, theta, 0), m.Name(), KindDiag+", order 0", func(PartitionRef) *PartitionTask {
-			return &PartitionTask{Model: m, Theta: append([]float64(nil), theta...), Score: cut}
+			return &PartitionTask{Model: m, Theta: append([]float64(nil), theta...), Score: cut, Shift: pr.whole.Shift}
 		})
 		if err != nil {
 			return 0, 0, err

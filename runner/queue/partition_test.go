@@ -5,6 +5,7 @@ import (
 	"os"
 	"path/filepath"
 	"slices"
+	"strconv"
 	"strings"
 	"testing"
 	"time"
@@ -277,6 +278,100 @@ func TestExecutePartsReadsOnceForFitsHere(t *testing.T) {
 		}
 		if r.Result.LogLik != want.LogLik || !slices.Equal(r.Result.Estimates, want.Estimates) || !slices.Equal(r.Result.StdErrors, want.StdErrors) {
 			t.Errorf("%s: %v %v, each read on its own %v %v", jobs[i].ID, r.Result.LogLik, r.Result.Estimates, want.LogLik, want.Estimates)
+		}
+	}
+}
+
+// Predictors far from zero for their spread (age and ed of the General
+// Social Survey extract, Long 1997, moved by 1e6, as a time stamp would
+// be): the fit summed over parts by workers runs centred by the whole
+// data's shift, as the fit of the whole file does, and gives its
+// estimates, errors and Lipsitz test (runner/fit's TestPartitionedFarFromZero
+// and the far-from-zero check of TestAgainstR check those fits against
+// the published data's fit and against R's glm). Summed over the parts
+// without centring, the fit reported no finite maximum.
+func TestPartitionedFarFromZero(t *testing.T) {
+	ctx := testContext(t, 60*time.Second)
+	url := localserver.ForTest(t)
+	c := connect(t, ctx, url)
+	startWorker(t, url, "w1", 5*time.Second, 0)
+	startWorker(t, url, "w2", 5*time.Second, 0)
+
+	b, err := os.ReadFile(filepath.Join(refDir, "gsswarm.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimRight(string(b), "\n"), "\n")
+	if lines[0] != "warm,yr89,male,white,age,ed,prst" {
+		t.Fatalf("header %q", lines[0])
+	}
+	var moved strings.Builder
+	moved.WriteString(lines[0] + "\n")
+	for _, ln := range lines[1:] {
+		f := strings.Split(ln, ",")
+		for _, k := range []int{4, 5} {
+			v, err := strconv.Atoi(f[k])
+			if err != nil {
+				t.Fatal(err)
+			}
+			f[k] = strconv.Itoa(v + 1_000_000)
+		}
+		moved.WriteString(strings.Join(f, ",") + "\n")
+	}
+	path := filepath.Join(t.TempDir(), "moved.csv")
+	if err := os.WriteFile(path, []byte(moved.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	dopt := data.Options{Outcome: "warm", Predictors: gssPredictors}
+	ds, err := data.Load(path, dopt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var paths []string
+	for _, p := range splitCSV(t, path, 3) {
+		paths = append(paths, p.Path)
+	}
+	whole, refs, _, err := PartitionFiles(paths, dopt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(whole.Shift) != len(gssPredictors) || whole.Shift[3] == 0 || whole.Shift[4] == 0 || whole.Shift[5] != 0 {
+		t.Fatalf("shift %v: want age and ed shifted alone", whole.Shift)
+	}
+	for _, s := range []runner.Spec{
+		{Approach: fit.Cumulative, Link: fit.Logit, Predictors: gssPredictors, Nonparallel: []string{"age"}},
+		{Approach: fit.Stage, Link: fit.Probit, Predictors: gssPredictors},
+	} {
+		m, err := s.Model()
+		if err != nil {
+			t.Fatal(err)
+		}
+		local, err := fit.Fit(runner.FitData(ds), m, fit.Options{Workers: 1})
+		if err != nil || !local.OK() {
+			t.Fatalf("%s: the whole file's fit: %v", m.Name(), err)
+		}
+		r, err := FitPartitioned(ctx, c, refs, whole, m, PartitionOptions{Data: dopt})
+		if err != nil {
+			t.Fatalf("%s: %v", m.Name(), err)
+		}
+		if !r.OK() || math.Abs(r.LogLik-local.LogLik) > 1e-9*math.Abs(local.LogLik) {
+			t.Fatalf("%s: %s (%s) ll %.12f, the whole file %.12f", m.Name(), r.Status, r.Message, r.LogLik, local.LogLik)
+		}
+		for i := range r.Estimates {
+			if math.Abs(r.Estimates[i]-local.Estimates[i]) > 1e-6*local.StdErrors[i] || math.Abs(r.StdErrors[i]-local.StdErrors[i]) > 1e-6*local.StdErrors[i] {
+				t.Errorf("%s %s: %v (%v), the whole file %v (%v)", m.Name(), r.ParamNames[i], r.Estimates[i], r.StdErrors[i], local.Estimates[i], local.StdErrors[i])
+			}
+		}
+		want, err := fit.LipsitzTest(runner.FitData(ds), local, 0, fit.Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, err := LipsitzPartitioned(ctx, c, refs, whole, r, PartitionOptions{Data: dopt})
+		if err != nil {
+			t.Fatalf("%s: Lipsitz test over the parts: %v", m.Name(), err)
+		}
+		if !want.Test.OK || !got.Test.OK || got.Test.DF != want.Test.DF || math.Abs(got.Test.Chi2-want.Test.Chi2) > 1e-6*want.Test.Chi2 {
+			t.Errorf("%s: Lipsitz %+v over the parts, %+v on the whole file", m.Name(), got.Test, want.Test)
 		}
 	}
 }

@@ -95,6 +95,9 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 		}
 	}
 	whole.J = len(whole.Categories)
+	// Predictors far from zero for their spread are fitted centred, as
+	// in a fit of the rows in one place (judged on the whole data).
+	whole.Shift = whole.Spread.Shift()
 	if err := kept.Check(data.PartsName(paths), dopt, whole.Categories, whole.Counts); err != nil {
 		return whole, nil, nil, err
 	}
