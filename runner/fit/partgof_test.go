@@ -12,8 +12,8 @@ import (
 type localParts struct {
 	parts []*Data
 	shift []float64 // Whole.Shift
-	asked int // queries of the cut and the table
-	keys  int // score keys sent by the parts
+	asked int       // queries of the cut and the table
+	keys  int       // score keys sent by the parts
 }
 
 func (l *localParts) Ask(q *ScoreQuery) ([]*ScoreAnswer, error) {
