@@ -73,7 +73,7 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		return
 	}
 	level, _ := confidence(r)
-	ors, err := res.OddsRatios(level)
+	tab, err := runner.OddsRatios(res, or.ColumnReadings(), level)
 	if err != nil {
 		d.p("Odds ratios not computed: %s.", err)
 		return
@@ -83,23 +83,22 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	lo, hi := res.Categories[0], res.Categories[1]
 	d.p("exp(b) for a one-unit increase of each model column (what that unit is, in the column Change), with %s intervals exp(b ∓ z·se): the %s. At the first boundary (%s/%s) it multiplies the %s, and likewise at the other boundaries; above 1 the outcome moves towards higher categories. A parallel predictor has one value for every boundary; a constrained predictor has exp(φ_m g) at boundary m, its interval from the delta method on b_m = φ_m g.",
 		pct(level), kind, lo, hi, fit.OddsRatioMeaning(res.Model, lo, hi))
-	ors, reads, omitted := readOddsRatios(or, ors)
-	where := slices.ContainsFunc(reads, func(c runner.ColumnReading) bool { return c.Where != "" })
+	where := slices.ContainsFunc(tab.Rows, func(o runner.OddsRatioRow) bool { return o.HoldsAt != "" })
 	if where {
 		d.p("A column whose term enters an interaction has its odds ratio where the terms it interacts with have their columns at 0 (column Holds at). The exp(b) of an interaction column is a ratio of odds ratios: the factor by which the odds ratio of one of its components changes with a unit of the other.")
 	}
-	if len(omitted) > 0 {
-		d.p("Not shown: the columns of %s. A column of a polynomial or spline basis (or a product with one) has no odds ratio of its own, since a unit change of one basis column with the others held fixed is no change of the predictor, and neither has a term whose data column also makes another term (it cannot change with that term held fixed); the effect of such a term is in the marginal effects and the predicted probabilities. Their estimates are in the table above.", strings.Join(omitted, ", "))
+	if len(tab.Omitted) > 0 {
+		d.p("Not shown: the columns of %s. A column of a polynomial or spline basis (or a product with one) has no odds ratio of its own, since a unit change of one basis column with the others held fixed is no change of the predictor, and neither has a term whose data column also makes another term (it cannot change with that term held fixed); the effect of such a term is in the marginal effects and the predicted probabilities. Their estimates are in the table above.", strings.Join(tab.Omitted, ", "))
 	}
 	var rows [][]string
-	for i, o := range ors {
+	for _, o := range tab.Rows {
 		at := "every boundary"
 		if o.Boundary > 0 {
 			at = fmt.Sprintf("%d (%s/%s)", o.Boundary, res.Categories[o.Boundary-1], res.Categories[o.Boundary])
 		}
-		row := []string{o.Predictor, reads[i].Change}
+		row := []string{o.Predictor, o.Change}
 		if where {
-			row = append(row, reads[i].Where)
+			row = append(row, o.HoldsAt)
 		}
 		rows = append(rows, append(row, at, numfmt.Fixed(o.Ratio, 4), numfmt.Fixed(o.Low, 4), numfmt.Fixed(o.High, 4)))
 	}
@@ -109,33 +108,6 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	}
 	head = append(head, "Boundary", capitalize(kind), pct(level)+" low", pct(level)+" high")
 	d.captioned(capitalize(kind)+"s of the chosen model").table(head, rows)
-}
-
-// readOddsRatios pairs each odds ratio with the reading of its model
-// column, and leaves out the columns that have no reading of their own
-// (polynomial and spline bases, products with them), naming their terms.
-func readOddsRatios(or *runner.OutcomeResult, ors []fit.OddsRatio) ([]fit.OddsRatio, []runner.ColumnReading, []string) {
-	byCol := map[string]runner.ColumnReading{}
-	for _, c := range or.ColumnReadings() {
-		byCol[c.Column] = c
-	}
-	var kept []fit.OddsRatio
-	var reads []runner.ColumnReading
-	var omitted []string
-	for _, o := range ors {
-		c, ok := byCol[o.Predictor]
-		if !ok {
-			c = runner.ColumnReading{Column: o.Predictor, Change: "per unit of " + o.Predictor, Alone: true}
-		}
-		if !c.Alone {
-			if t := termOfParam(or, o.Predictor); !slices.Contains(omitted, t) {
-				omitted = append(omitted, t)
-			}
-			continue
-		}
-		kept, reads = append(kept, o), append(reads, c)
-	}
-	return kept, reads, omitted
 }
 
 func capitalize(s string) string {

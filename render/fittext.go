@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"strings"
 	"text/tabwriter"
 
@@ -140,7 +141,11 @@ func FitChecksText(w io.Writer, r *fit.Result, c *runner.SingleChecks, level flo
 		level = 0.95
 	}
 	if r.Model.Link == fit.Logit && len(r.Predictors) > 0 {
-		if err := oddsRatioText(w, r, level); err != nil {
+		var readings []runner.ColumnReading
+		if c != nil {
+			readings = c.Readings
+		}
+		if err := oddsRatioText(w, r, readings, level); err != nil {
 			return err
 		}
 	}
@@ -179,24 +184,41 @@ func FitChecksText(w io.Writer, r *fit.Result, c *runner.SingleChecks, level flo
 	return nil
 }
 
-// oddsRatioText writes exp(b) of each slope with its interval.
-func oddsRatioText(w io.Writer, r *fit.Result, level float64) error {
-	ors, err := r.OddsRatios(level)
+// oddsRatioText writes exp(b) of each model column with a reading of its
+// own (runner.OddsRatios, as the report decides them), what one unit of it
+// is, where it holds, and its interval; it names the terms left out.
+func oddsRatioText(w io.Writer, r *fit.Result, readings []runner.ColumnReading, level float64) error {
+	tab, err := runner.OddsRatios(r, readings, level)
 	if err != nil {
 		_, err = fmt.Fprintf(w, "\nOdds ratios not computed: %v\n", err)
 		return err
 	}
 	fmt.Fprintf(w, "\n%ss, exp(b) (above 1: towards higher categories):\n", capitalize(fit.OddsRatioKind(r.Model)))
-	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintf(tw, "predictor\tboundary\tratio\t%g%% interval\t\n", 100*level)
-	for _, o := range ors {
-		where := "all"
-		if o.Boundary > 0 {
-			where = fit.BoundaryLabel(r.Categories, o.Boundary-1)
-		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t[%s, %s]\t\n", o.Predictor, where, numfmt.Fixed(o.Ratio, 4), numfmt.Fixed(o.Low, 4), numfmt.Fixed(o.High, 4))
+	where := slices.ContainsFunc(tab.Rows, func(o runner.OddsRatioRow) bool { return o.HoldsAt != "" })
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	head := "predictor\tchange\t"
+	if where {
+		head += "holds at\t"
 	}
-	return tw.Flush()
+	fmt.Fprintf(tw, "%sboundary\tratio\t%g%% interval\n", head, 100*level)
+	for _, o := range tab.Rows {
+		at := "all"
+		if o.Boundary > 0 {
+			at = fit.BoundaryLabel(r.Categories, o.Boundary-1)
+		}
+		row := o.Predictor + "\t" + o.Change + "\t"
+		if where {
+			row += o.HoldsAt + "\t"
+		}
+		fmt.Fprintf(tw, "%s%s\t%s\t[%s, %s]\n", row, at, numfmt.Fixed(o.Ratio, 4), numfmt.Fixed(o.Low, 4), numfmt.Fixed(o.High, 4))
+	}
+	if err := tw.Flush(); err != nil {
+		return err
+	}
+	if len(tab.Omitted) > 0 {
+		_, err = fmt.Fprintf(w, "No odds ratio for the columns of %s: a column of a polynomial or spline basis (or a product with one), or of a term whose data column also makes another term, has no unit change of its own; their estimates are in the table above.\n", strings.Join(tab.Omitted, ", "))
+	}
+	return err
 }
 
 // testText is a test in one phrase: "chi2(3) = 4.210, p = 0.2399", or why

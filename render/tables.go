@@ -180,19 +180,18 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	// Odds ratios of the chosen model.
 	if or.Chosen != nil && or.Chosen.OK() && or.Chosen.Result.Model.Link == fit.Logit {
 		res := or.Chosen.Result
-		if ors, err := res.OddsRatios(level); err == nil {
+		if tab, err := runner.OddsRatios(res, or.ColumnReadings(), level); err == nil {
 			rows = nil
-			ors, reads, omitted := readOddsRatios(or, ors)
-			for i, x := range ors {
+			for _, x := range tab.Rows {
 				b := ""
 				if x.Boundary > 0 {
 					b = res.Categories[x.Boundary-1] + "/" + res.Categories[x.Boundary]
 				}
-				rows = append(rows, []string{or.Chosen.ID, x.Predictor, reads[i].Change, reads[i].Where, strconv.Itoa(x.Boundary), b, x.Kind, csvNum(x.Log), csvNum(x.LogSE), csvNum(x.Ratio), csvNum(x.Low), csvNum(x.High)})
+				rows = append(rows, []string{or.Chosen.ID, x.Predictor, x.Change, x.HoldsAt, strconv.Itoa(x.Boundary), b, x.Kind, csvNum(x.Log), csvNum(x.LogSE), csvNum(x.Ratio), csvNum(x.Low), csvNum(x.High)})
 			}
 			about := "exp(b) of the chosen model with " + lv + "% intervals (boundary 0: the same at every boundary; change: what one unit of the column is; holds_at: where the terms the column's term interacts with have their columns at 0)"
-			if len(omitted) > 0 {
-				about += "; the columns of " + strings.Join(omitted, ", ") + " (polynomial or spline bases, or terms sharing a data column with another term) have no odds ratio of their own and are left out"
+			if len(tab.Omitted) > 0 {
+				about += "; the columns of " + strings.Join(tab.Omitted, ", ") + " (polynomial or spline bases, or terms sharing a data column with another term) have no odds ratio of their own and are left out"
 			}
 			add("odds-ratios", about,
 				[]string{"model", "predictor", "change", "holds_at", "boundary", "categories", "kind", "log_estimate", "log_se", "ratio", "low_" + lv, "high_" + lv}, rows)

@@ -221,15 +221,7 @@ func sourceEffects(or *OutcomeResult, res *fit.Result, raw []float64, n int, off
 }
 
 // binarySource reports whether numeric source s takes only 0 and 1.
-func (or *OutcomeResult) binarySource(s int) bool {
-	S := len(or.Design.Sources)
-	for i := 0; i < or.Data.N; i++ {
-		if v := or.Data.X[i*S+s]; v != 0 && v != 1 {
-			return false
-		}
-	}
-	return true
-}
+func (or *OutcomeResult) binarySource(s int) bool { return binarySource(or.Design, or.Data, s) }
 
 // representative is one raw row: numeric columns at their (weighted)
 // means over the rows used, categorical columns at their reference level,

@@ -3,6 +3,7 @@ package runner
 import (
 	"ordplan/runner/data"
 	"ordplan/runner/fit"
+	"slices"
 )
 
 // PartitionedChecks gives the checks of a fit summed over the partition
@@ -38,6 +39,10 @@ func PartitionedChecks(s SingleFit, res *fit.Result, parts []string, whole fit.W
 		}
 	}
 	var spread fit.EtaSpread
+	binary := make([]bool, len(res.Predictors)) // the columns are plain (Partitioned)
+	for k := range binary {
+		binary[k] = true
+	}
 	part := dopt
 	part.Part = true // its subset values were judged on all parts (queue.PartitionFiles)
 	for _, p := range parts {
@@ -46,6 +51,15 @@ func PartitionedChecks(s SingleFit, res *fit.Result, parts []string, whole fit.W
 			return nil, err
 		}
 		spread.Add(FitData(ds), res)
+		P := len(ds.Predictors)
+		for k, name := range res.Predictors {
+			c := slices.Index(ds.Predictors, name)
+			binary[k] = binary[k] && c >= 0
+			for i := 0; i < ds.N && binary[k]; i++ {
+				v := ds.X[i*P+c]
+				binary[k] = v == 0 || v == 1
+			}
+		}
 	}
 	o := fit.OverallFitSpread(res, null, &spread)
 	if null == nil {
@@ -55,5 +69,6 @@ func PartitionedChecks(s SingleFit, res *fit.Result, parts []string, whole fit.W
 		Overall:      OverallRecord{Model: res.Name, Null: fit.ModelID(res.Model.ComparisonName(), "thresholds-only", res.Model.Link), Overall: o},
 		Lipsitz:      lz,
 		PatternSplit: &PatternSplitRecord{Predictors: []string{}, NotComputed: noCategorical},
+		Readings:     plainReadings(res.Predictors, binary),
 	}, nil
 }

@@ -7,7 +7,9 @@ import (
 	"strconv"
 	"strings"
 
+	"ordplan/runner/data"
 	"ordplan/runner/design"
+	"ordplan/runner/fit"
 )
 
 // ColumnReading says what one unit of a design column is, so that a slope
@@ -30,6 +32,8 @@ type ColumnReading struct {
 	// held fixed is no change of the predictor, so its slope has no
 	// reading of its own.
 	Alone bool
+	// Term is the plan term (or --predictors item) the column belongs to.
+	Term string
 	// named: the change reads without the term's name (a level, 1 against
 	// 0), so an interaction's reading puts the name before it.
 	named bool
@@ -38,19 +42,25 @@ type ColumnReading struct {
 // ColumnReadings gives the reading of every design column of the outcome,
 // in design order.
 func (or *OutcomeResult) ColumnReadings() []ColumnReading {
-	dz := or.Design
+	return columnReadings(or.Design, or.Data, or.FitData)
+}
+
+// columnReadings gives the reading of every column of design dz, whose raw
+// columns are those of raw (nil: no column is read as 1 against 0); without
+// a design, fd's columns are plain numeric columns.
+func columnReadings(dz *design.Design, raw *data.Dataset, fd *fit.Data) []ColumnReading {
 	if dz == nil {
-		var out []ColumnReading
-		if or.FitData != nil {
-			for _, c := range or.FitData.Predictors {
-				out = append(out, ColumnReading{Column: c, Change: "per unit of " + c, Alone: true})
-			}
+		if fd == nil {
+			return nil
 		}
-		return out
+		return plainReadings(fd.Predictors, make([]bool, len(fd.Predictors)))
 	}
 	per := make([][]ColumnReading, len(dz.Terms)) // the columns of each term, without Where
 	for k := range dz.Terms {
-		per[k] = or.termReadings(k, per)
+		per[k] = termReadings(dz, raw, k, per)
+		for i := range per[k] {
+			per[k][i].Term = dz.Terms[k].Name
+		}
 	}
 	var out []ColumnReading
 	for k := range dz.Terms {
@@ -67,10 +77,9 @@ func (or *OutcomeResult) ColumnReadings() []ColumnReading {
 	return out
 }
 
-// termReadings reads the columns of term k (the terms before it already
-// read, in per, for an interaction's components).
-func (or *OutcomeResult) termReadings(k int, per [][]ColumnReading) []ColumnReading {
-	dz := or.Design
+// termReadings reads the columns of term k of dz (the terms before it
+// already read, in per, for an interaction's components).
+func termReadings(dz *design.Design, raw *data.Dataset, k int, per [][]ColumnReading) []ColumnReading {
 	t := &dz.Terms[k]
 	switch t.Kind {
 	case design.KindCategorical:
@@ -145,10 +154,22 @@ func (or *OutcomeResult) termReadings(k int, per [][]ColumnReading) []ColumnRead
 	switch {
 	case tr.Scale && !math.IsNaN(t.SD):
 		r.Change = fmt.Sprintf("per SD (%s) of %s", strconv.FormatFloat(t.SD, 'g', 6, 64), expr)
-	case !tr.Log && !tr.Sqrt && or.Data != nil && or.binarySource(t.Source):
+	case !tr.Log && !tr.Sqrt && raw != nil && binarySource(dz, raw, t.Source):
 		r.Change, r.named = "1 against 0", true
 	}
 	return []ColumnReading{r}
+}
+
+// binarySource reports whether numeric source s of design dz takes only 0
+// and 1 in the raw rows.
+func binarySource(dz *design.Design, raw *data.Dataset, s int) bool {
+	S := len(dz.Sources)
+	for i := 0; i < raw.N; i++ {
+		if v := raw.X[i*S+s]; v != 0 && v != 1 {
+			return false
+		}
+	}
+	return true
 }
 
 // valueText writes the value a numeric term's columns are made of, before

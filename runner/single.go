@@ -57,6 +57,9 @@ type SingleChecks struct {
 	Overall      OverallRecord       `json:"overall_fit"`
 	Lipsitz      *fit.Lipsitz        `json:"lipsitz,omitempty"`
 	PatternSplit *PatternSplitRecord `json:"pulkstenis_robinson,omitempty"`
+	// Readings say what each model column's odds ratio compares
+	// (OddsRatios).
+	Readings []ColumnReading `json:"-"`
 }
 
 // FitOneChecked is FitOne followed, when the fit has a finite maximum, by
@@ -82,7 +85,7 @@ func FitOneChecked(s SingleFit) (*fit.Result, *data.Dataset, *SingleChecks, erro
 		null, _ := fit.FitNull(ld.FitData, res.Model, a.Fit)
 		o = overallFit(ld.FitData, res, null, a.Errors.Sampling)
 	}()
-	c := &SingleChecks{}
+	c := &SingleChecks{Readings: columnReadings(ld.Design, ld.Data, ld.FitData)}
 	c.Lipsitz, c.PatternSplit = goodnessOfFit(ld, res, a.Fit, a.Errors.Sampling)
 	<-done
 	c.Overall = OverallRecord{Model: res.Name, Null: fit.ModelID(res.Model.ComparisonName(), "thresholds-only", res.Model.Link), Overall: o}

@@ -184,7 +184,7 @@ func TestFitPrintsChecks(t *testing.T) {
 		t.Fatalf("no estimate of male in %s", js)
 	}
 	const z = 1.6448536269514722
-	row := fmt.Sprintf("male all %.4f [%.4f, %.4f]", math.Exp(b), math.Exp(b-z*se), math.Exp(b+z*se))
+	row := fmt.Sprintf("male 1 against 0 all %.4f [%.4f, %.4f]", math.Exp(b), math.Exp(b-z*se), math.Exp(b+z*se))
 	if !strings.Contains(strings.Join(strings.Fields(out), " "), row) {
 		t.Errorf("odds ratio row %q not in:\n%s", row, out)
 	}

@@ -1,0 +1,102 @@
+package main
+
+import (
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// `ordplan fit` shows the odds ratios the report shows: the same rows (no
+// spline basis column), each with what it compares and where it holds,
+// and names the term left out, because both take them from
+// runner.OddsRatios. The plan below and the flags describe the same model;
+// the rows of the fit's text are compared with the report's CSV, and each
+// ratio with exp of the estimate printed by --json (the definition
+// exp(b), docs/models.md); what each change compares is checked against
+// the fitted probabilities in runner/readings_test.go.
+func TestFitOddsRatiosAsTheReport(t *testing.T) {
+	qs, err := filepath.Abs(filepath.Join("..", "..", "plans", "data", "quietstreets.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	plan := filepath.Join(dir, "plan.yaml")
+	src := `version: 1
+title: odds ratios of fit and report
+data: {file: ` + qs + `}
+outcomes: [{column: safety, categories: [very_unsafe, unsafe, neutral, safe, very_safe]}]
+categorical:
+  street_type: {levels: [residential, through_road, cul_de_sac]}
+predictors:
+  - pilot
+  - {name: age.spline, column: age, spline: {quantiles: [0.1, 0.5, 0.9]}}
+  - street_type
+  - {name: yrs, column: years_resident, scale: sd}
+  - {interact: [pilot, yrs]}
+models: {approaches: [cumulative], effects: [parallel]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: aic}
+`
+	if err := os.WriteFile(plan, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "out")
+	if _, errs, code := runCLI("run", plan, "--out", out, "--quiet"); code != 0 {
+		t.Fatalf("run: exit %d: %s", code, errs)
+	}
+	b, err := os.ReadFile(filepath.Join(out, "table-odds-ratios-safety.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	recs, err := csv.NewReader(bytes.NewReader(b)).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	args := []string{"fit", "--data", qs, "--outcome", "safety", "--categories", "very_unsafe,unsafe,neutral,safe,very_safe",
+		"--predictors", "pilot,age|spline=q0.1/0.5/0.9,street_type|levels=residential/through_road/cul_de_sac,years_resident|scale|as=yrs,pilot&yrs"}
+	text, errs, code := runCLI(args...)
+	if code != 0 {
+		t.Fatalf("fit: exit %d: %s", code, errs)
+	}
+	js, errs, code := runCLI(append(args, "--json")...)
+	if code != 0 {
+		t.Fatalf("fit --json: exit %d: %s", code, errs)
+	}
+	var rec struct {
+		Estimates map[string]float64 `json:"estimates"`
+	}
+	if err := json.Unmarshal([]byte(js), &rec); err != nil {
+		t.Fatal(err)
+	}
+	if len(recs) != 6 { // header and pilot, two street types, yrs, pilot&yrs
+		t.Fatalf("report's odds ratios:\n%s", b)
+	}
+	// The text's lines as single-spaced words.
+	var lines []string
+	for _, l := range strings.Split(text, "\n") {
+		lines = append(lines, strings.Join(strings.Fields(l), " "))
+	}
+	joined := strings.Join(lines, "\n")
+	for _, r := range recs[1:] { // model,predictor,change,holds_at,boundary,categories,kind,log_estimate,log_se,ratio,...
+		pred, change, holds := r[1], r[2], r[3]
+		ratio := math.Exp(rec.Estimates[pred])
+		row := strings.Join(strings.Fields(fmt.Sprintf("%s %s %s all %.4f [", pred, change, holds, ratio)), " ")
+		if !strings.Contains(joined, "\n"+row) {
+			t.Errorf("report row %q: no line %q in the fit's text:\n%s", r, row, text)
+		}
+	}
+	_, ors, _ := strings.Cut(joined, "odds ratios, exp(b)")
+	if strings.Contains(ors, "age.spline.1") || !strings.Contains(joined, "No odds ratio for the columns of age.spline:") {
+		t.Errorf("the spline's columns in the fit's odds ratios, or the term not named:\n%s", text)
+	}
+	if !strings.Contains(joined, "predictor change holds at boundary ratio 95% interval") {
+		t.Errorf("header:\n%s", text)
+	}
+}

@@ -1,0 +1,70 @@
+package runner
+
+import (
+	"slices"
+
+	"ordplan/runner/fit"
+)
+
+// OddsRatioRow is exp(b) of one model column at one boundary (a logit
+// fit), with what it compares: the change one unit of the column is, and
+// where it holds when the column's term enters an interaction.
+type OddsRatioRow struct {
+	fit.OddsRatio
+	Change  string `json:"change"`
+	HoldsAt string `json:"holds_at"`
+}
+
+// OddsRatioTable is what the report, its CSV and `ordplan fit` show of a
+// logit fit's odds ratios: the rows, and the terms left out.
+type OddsRatioTable struct {
+	Rows []OddsRatioRow
+	// Omitted names, in design order, the terms whose columns have no odds
+	// ratio of their own (polynomial and spline bases, products with them,
+	// terms whose data column also makes another term).
+	Omitted []string
+}
+
+// OddsRatios decides the odds-ratio table of fit r from the readings of
+// its model columns (ColumnReadings, or SingleChecks.Readings): each
+// column with a reading of its own gets its rows with that reading, every
+// other column is left out and its term named. A column without a reading
+// (none given) reads per unit of itself.
+func OddsRatios(r *fit.Result, readings []ColumnReading, level float64) (OddsRatioTable, error) {
+	ors, err := r.OddsRatios(level)
+	if err != nil {
+		return OddsRatioTable{}, err
+	}
+	byCol := map[string]ColumnReading{}
+	for _, c := range readings {
+		byCol[c.Column] = c
+	}
+	var t OddsRatioTable
+	for _, o := range ors {
+		c, ok := byCol[o.Predictor]
+		if !ok {
+			c = ColumnReading{Column: o.Predictor, Term: o.Predictor, Change: "per unit of " + o.Predictor, Alone: true}
+		}
+		if !c.Alone {
+			if !slices.Contains(t.Omitted, c.Term) {
+				t.Omitted = append(t.Omitted, c.Term)
+			}
+			continue
+		}
+		t.Rows = append(t.Rows, OddsRatioRow{OddsRatio: o, Change: c.Change, HoldsAt: c.Where})
+	}
+	return t, nil
+}
+
+// plainReadings reads plain numeric columns: 1 against 0 for a column
+// that takes only those values (binary[i]), per unit otherwise.
+func plainReadings(columns []string, binary []bool) []ColumnReading {
+	out := make([]ColumnReading, len(columns))
+	for i, c := range columns {
+		out[i] = ColumnReading{Column: c, Term: c, Change: "per unit of " + c, Alone: true}
+		if binary[i] {
+			out[i].Change, out[i].named = "1 against 0", true
+		}
+	}
+	return out
+}
