@@ -77,7 +77,8 @@ func (c *Client) runBatch(ctx context.Context, id string, tasks []*Task, h batch
 		return nil, b.st, fmt.Errorf("results bucket: %v", err)
 	}
 	defer w.Stop()
-	// Replies stored before this call: a restarted coordinator reuses them.
+	// Replies stored before this call: a restarted coordinator reuses them
+	// (but for errors, computed again).
 	for {
 		e, err := next(ctx, w.Updates(), nil)
 		if err != nil {
@@ -165,7 +166,9 @@ func (c *Client) runBatch(ctx context.Context, id string, tasks []*Task, h batch
 }
 
 // take opens and checks one entry. A valid reply to a task still waiting
-// is kept (it returns true); an invalid one is deleted and, when
+// is kept (it returns true), but for an error reply stored before the
+// batch started (republish not set), which is deleted for the task to be
+// published with the others; an invalid one is deleted and, when
 // republish is set, its task published again.
 func (b *batch) take(e jetstream.KeyValueEntry, republish bool) (bool, error) {
 	if e.Operation() != jetstream.KeyValuePut {
@@ -183,6 +186,19 @@ func (b *batch) take(e jetstream.KeyValueEntry, republish bool) (bool, error) {
 	r, err := b.c.openReply(b.ctx, e.Key(), e.Value())
 	if err == nil {
 		err = checkReply(b.tasks[i], r)
+	}
+	if err == nil && r.Err != "" && !republish {
+		// An error is the answer of the run that got it, never a result
+		// kept for the next: a panic, a job no worker finished, a data
+		// file a worker could not fetch, a worker's limits may all be
+		// gone now. Stored before this batch started, it is purged (with
+		// its earlier revisions, unless something was stored after it)
+		// and the task published again.
+		b.c.logf("queue: job %s: the error stored under %s by an earlier run (worker %s: %.200s) is not reused: computed again", b.tasks[i].ID, shortKey(e.Key()), r.Worker, r.Err)
+		if derr := b.c.results.Purge(b.ctx, e.Key(), jetstream.LastRevision(e.Revision())); derr != nil && !errors.Is(derr, jetstream.ErrKeyExists) {
+			b.c.logf("queue: deleting the stored error %s: %v", shortKey(e.Key()), derr)
+		}
+		return false, nil
 	}
 	if err == nil {
 		b.replies[i], b.revs[i] = r, e.Revision()

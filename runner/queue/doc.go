@@ -46,7 +46,8 @@
 // partitions, the parameters and the derivative order). Ids are content
 // hashes, so a restarted coordinator finds the replies already stored,
 // publishes only the jobs that have neither a reply nor a queued message,
-// and collects the rest.
+// and collects the rest. A stored error reply is the answer of the run that
+// got it, not a result: a later batch purges it and publishes the job again.
 //
 // Messages are gob-encoded: a Task on the jobs stream and a Reply in the
 // bucket, each sealed with an HMAC-SHA256 made with the secret shared by

@@ -211,3 +211,57 @@ func TestOverwrittenReplyBeforeWatchIgnored(t *testing.T) {
 		t.Errorf("the overwrite is not logged:\n%s", clog.String())
 	}
 }
+
+// A worker's error reply is the answer of one run, not a result kept for
+// the next: run 1 gets job 0's error (stored as a worker stores the reply
+// of a panic, under the job's key, while the job waits in the stream),
+// and a rerun on the same server computes the job again and gets the fit
+// of the whole file (General Social Survey extract, Long 1997), instead
+// of the stale error.
+func TestStoredErrorNotReused(t *testing.T) {
+	q := newTestQueue(t, 60*time.Second, fit.ParallelEffects, fit.NonparallelEffects)
+	ctx, url, c, path, jobs := q.ctx, q.url, q.c, q.path, q.jobs
+	id, err := RunID("plan-hash", jobs)
+	if err != nil {
+		t.Fatal(err)
+	}
+	done := make(chan []error, 1)
+	co := q.coordinator(t, nil)
+	go func() {
+		_, errs := co.Execute(jobs)
+		done <- errs
+	}()
+	waitFor(t, 10*time.Second, "the jobs in the stream", func() bool {
+		info, err := c.jobs.Info(ctx)
+		return err == nil && info.State.Msgs == 2
+	})
+	const stale = "internal error on worker w0: runtime error: index out of range [3] with length 3"
+	storeReply(t, ctx, c, resultKey(id, 0), &Reply{Batch: id, Index: 0, ID: jobs[0].ID, Worker: "w0", Err: jobs[0].ID + ": " + stale}, false)
+	startWorker(t, url, "w1", 5*time.Second, 0)
+	var errs []error
+	select {
+	case errs = <-done:
+	case <-ctx.Done():
+		t.Fatal("run 1 did not finish")
+	}
+	if errs[0] == nil || !strings.Contains(errs[0].Error(), stale) || errs[1] != nil {
+		t.Fatalf("run 1: %v, want job 0's error and job 1's fit", errs)
+	}
+	clog := &LogBuffer{}
+	res, errs := q.coordinator(t, clog).Execute(jobs)
+	if errs[0] != nil || errs[1] != nil {
+		t.Fatalf("the rerun: %v; coordinator log:\n%s", errs, clog.String())
+	}
+	for i, j := range jobs {
+		want, err := runner.ExecuteJob(path, j)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if math.Float64bits(res[i].LogLik) != math.Float64bits(want.LogLik) {
+			t.Errorf("the rerun's job %d: %v, want %v", i, res[i].LogLik, want.LogLik)
+		}
+	}
+	if !strings.Contains(clog.String(), "computed again") {
+		t.Errorf("the coordinator does not say the stored error is computed again:\n%s", clog.String())
+	}
+}
