@@ -141,8 +141,17 @@ func (k *kernel) cumulative(L []float64, c int, g, h []float64) (float64, bool) 
 type middle struct{ lp, ra, rb, haa, hbb float64 }
 
 // setSecond sets the second derivatives from qa, qb = f'/f at a and b:
-// hbb = qb rb - rb^2, haa = -qa ra - ra^2.
+// hbb = qb rb - rb^2, haa = -qa ra - ra^2. f'/f is infinite only where f
+// itself is 0 in floating point (cloglog beyond z = 709.78, loglog below
+// its negative; ra or rb 0), and there f' = f q vanishes too: the term is
+// 0, where the product would be NaN.
 func (m *middle) setSecond(qa, qb float64) {
+	if math.IsInf(qa, 0) && m.ra == 0 {
+		qa = 0
+	}
+	if math.IsInf(qb, 0) && m.rb == 0 {
+		qb = 0
+	}
 	m.hbb = qb*m.rb - m.rb*m.rb
 	m.haa = -qa*m.ra - m.ra*m.ra
 }
