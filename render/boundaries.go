@@ -36,7 +36,7 @@ func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		d.p("Not drawn: the plan fitted no %s model.", npID)
 		return
 	case !np.OK():
-		d.p("Not drawn: %s has no usable estimates (%s).", npID, fitProblem(np))
+		d.p("Not drawn: %s has no usable estimates (%s).", npID, mdText(fitProblem(np)))
 		return
 	}
 	parID := fit.ModelID(approach, fit.ParallelEffects.String(), ch.Link)

@@ -32,7 +32,7 @@ func writeChained(d *doc, ch *runner.ChainedRecord, rows int, dz *design.Design)
 		if m.Method == chained.MeanMatching {
 			w = fmt.Sprintf(w, ch.Donors)
 		}
-		tab = append(tab, []string{"`" + m.Column + "`", m.Kind, fmt.Sprint(m.Missing), sharePct(m.Missing, rows), w, strings.Join(m.Predictors, ", ")})
+		tab = append(tab, []string{md(mdCode(m.Column)), m.Kind, fmt.Sprint(m.Missing), sharePct(m.Missing, rows), w, strings.Join(m.Predictors, ", ")})
 	}
 	d.captioned("Imputation models").table([]string{"Column", "Kind", "Imputed", "Share", "Model", "Predictors"}, tab)
 	if lack := termsImputationLacks(dz); lack != "" {
@@ -45,7 +45,7 @@ func writeChained(d *doc, ch *runner.ChainedRecord, rows int, dz *design.Design)
 	if ch.ConvergenceTable {
 		var tr [][]string
 		for _, t := range ch.Trace {
-			tr = append(tr, []string{"`" + t.Column + "`", fmt.Sprint(t.Iteration), numfmt.Est(t.Mean), numfmt.Est(t.SD), numfmt.Est(t.SpreadMean)})
+			tr = append(tr, []string{md(mdCode(t.Column)), fmt.Sprint(t.Iteration), numfmt.Est(t.Mean), numfmt.Est(t.SD), numfmt.Est(t.SpreadMean)})
 		}
 		d.p("Convergence: after every iteration, the mean and SD of each column's imputed values (averaged over the sets; categorical columns as level indexes from 0) and the SD of the set means across sets. The values should wander without a trend over the last iterations; a trend calls for more iterations.")
 		d.captioned("Imputed values by iteration").table([]string{"Column", "Iteration", "Mean", "SD", "SD of set means"}, tr)

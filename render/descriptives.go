@@ -174,7 +174,7 @@ func writeMissing(d *doc, or *runner.OutcomeResult) {
 		return
 	}
 	if len(mt.Patterns) == 0 {
-		d.p("No used column (%s) has a missing value.", strings.Join(mt.Columns, ", "))
+		d.p("No used column (%s) has a missing value.", mdText(strings.Join(mt.Columns, ", ")))
 		return
 	}
 	complete := or.Data.N
@@ -194,7 +194,7 @@ func writeMissing(d *doc, or *runner.OutcomeResult) {
 	}
 	var rows [][]string
 	for j, c := range mt.Columns {
-		rows = append(rows, []string{"`" + c + "`", fmt.Sprint(mt.ByColumn[j]), sharePct(mt.ByColumn[j], mt.Rows)})
+		rows = append(rows, []string{md(mdCode(c)), fmt.Sprint(mt.ByColumn[j]), sharePct(mt.ByColumn[j], mt.Rows)})
 	}
 	d.captioned("Missing values per used column").table([]string{"Column", "Rows missing", "Share"}, rows)
 
@@ -225,7 +225,7 @@ func writeMissing(d *doc, or *runner.OutcomeResult) {
 		d.p("Rows of each outcome category that miss each other used column with missing values, and that miss any: count (share of the category's rows). Rows whose outcome is missing (%d) belong to no category.", mt.ByColumn[0])
 		head = []string{"Category", "Rows"}
 		for _, j := range shown {
-			head = append(head, "`"+mt.Columns[j]+"`")
+			head = append(head, md(mdCode(mt.Columns[j])))
 		}
 		head = append(head, "Any")
 		rows = nil

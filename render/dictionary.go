@@ -57,7 +57,7 @@ func writeDictionary(d *doc, r *runner.Result) {
 			}
 			values = strings.Join(c.Levels, sep) + " (reference " + c.Reference + ")"
 		}
-		rows = append(rows, []string{"`" + u.Column + "`", u.Role, kind, values, missingCodes(common, own), label, unit})
+		rows = append(rows, []string{md(mdCode(u.Column)), u.Role, kind, values, md(missingCodes(common, own)), label, unit})
 	}
 	d.table([]string{"Column", "Role", "Kind", "Values", "Missing-value codes", "Label", "Unit"}, rows)
 	d.p("The data file was checked against this dictionary before any model was fitted: every value of a numeric column is a number, within its range and among its values, and every outcome value is one of its categories.")
@@ -69,7 +69,7 @@ func missingCodes(common, own []string) string {
 		if c == "" {
 			q = append(q, "(empty)")
 		} else {
-			q = append(q, "`"+c+"`")
+			q = append(q, mdCode(c))
 		}
 	}
 	return strings.Join(q, ", ")

@@ -119,7 +119,12 @@ func (d *doc) table(head []string, rows [][]string) {
 	}
 	d.caption = ""
 	fmt.Fprintf(&d.b, "**Table %d.** %s\n\n", d.nTable, caption)
-	esc := func(s string) string { return strings.ReplaceAll(s, "|", `\|`) }
+	esc := func(s string) string {
+		if m, ok := strings.CutPrefix(s, mdMark); ok {
+			return strings.ReplaceAll(m, "|", `\|`)
+		}
+		return mdText(s)
+	}
 	cells := make([]string, len(head))
 	var align strings.Builder
 	for i, h := range head {
@@ -139,6 +144,85 @@ func (d *doc) table(head []string, rows [][]string) {
 		fmt.Fprintf(&d.b, "| %s |\n", strings.Join(cells, " | "))
 	}
 	d.b.WriteString("\n")
+}
+
+// mdMark begins a table cell that is Markdown already (md); any other cell
+// is text, shown as it is (mdText).
+const mdMark = "\uE000"
+
+// md marks a table cell as Markdown (a code span, bold), which table
+// writes as it is; other cells are text, escaped by table.
+func md(s string) string { return mdMark + s }
+
+// mdText is text shown literally in Markdown: a name, label, category,
+// level or title from the plan or the data, or a message quoting them.
+// Every character that could start Markdown or HTML is escaped: '\', '*',
+// '|', '_' unless inside a word, '<' before what could open a tag or an
+// autolink, '&' beginning a character reference, ']' before what would
+// make a link; a backtick is written as its character reference (a
+// backslash before it would be taken as the end of a code span by a
+// reader that strips backticks, such as the table of contents); a line
+// break becomes a space. Plain names ("very_unsafe", "pilot&street_type",
+// "tau[1]", "<0.001") are left as they are.
+func mdText(s string) string {
+	if !strings.ContainsAny(s, "\\*|_<&]`\n\r") {
+		return s
+	}
+	rs := []rune(s)
+	word := func(i int) bool {
+		return i >= 0 && i < len(rs) && (unicode.IsLetter(rs[i]) || unicode.IsDigit(rs[i]))
+	}
+	var b strings.Builder
+	for i, r := range rs {
+		next := rune(0)
+		if i+1 < len(rs) {
+			next = rs[i+1]
+		}
+		switch {
+		case r == '\\' || r == '*' || r == '|':
+			b.WriteByte('\\')
+		case r == '_' && !(word(i-1) && word(i+1)):
+			b.WriteByte('\\')
+		case r == '<' && (next == '/' || next == '!' || next == '?' || unicode.IsLetter(next)):
+			b.WriteByte('\\')
+		case r == '&' && entityRef.MatchString(string(rs[i:])):
+			b.WriteByte('\\')
+		case r == ']' && (next == '(' || next == '[' || next == ':'):
+			b.WriteByte('\\')
+		case r == '`':
+			b.WriteString("&#96;")
+			continue
+		case r == '\n' || r == '\r':
+			b.WriteByte(' ')
+			continue
+		}
+		b.WriteRune(r)
+	}
+	return b.String()
+}
+
+// entityRef matches text beginning with an HTML character reference.
+var entityRef = regexp.MustCompile(`^&(#[0-9]{1,7}|#[xX][0-9a-fA-F]{1,6}|[A-Za-z][A-Za-z0-9]{0,31});`)
+
+// mdCode is s as a Markdown code span, literal whatever it holds: fenced
+// by one backtick more than its longest run of backticks, padded with a
+// space where it begins or ends with one; line breaks become spaces.
+func mdCode(s string) string {
+	s = strings.NewReplacer("\r\n", " ", "\n", " ", "\r", " ").Replace(s)
+	longest, run := 0, 0
+	for _, r := range s {
+		if r == '`' {
+			run++
+			longest = max(longest, run)
+		} else {
+			run = 0
+		}
+	}
+	fence := strings.Repeat("`", longest+1)
+	if strings.HasPrefix(s, "`") || strings.HasSuffix(s, "`") {
+		s = " " + s + " "
+	}
+	return fence + s + fence
 }
 
 // numberCell matches a cell that reads as a number: a sign, digits, a
@@ -208,7 +292,7 @@ func (d *doc) markdown() []byte {
 				} else {
 					all = false
 				}
-				fmt.Fprintf(&out, "**Figure %d.** %s\n\n", c.number, c.caption)
+				fmt.Fprintf(&out, "**Figure %d.** %s\n\n", c.number, mdText(c.caption))
 			}
 			if !all {
 				fmt.Fprintf(&out, "*%s*\n\n", pt.note)

@@ -43,7 +43,7 @@ func writeHypotheses(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		if model == "" {
 			model = "(none)"
 		}
-		row := []string{"`" + h.Text + "`", fmt.Sprint(h.Line), model, "", "", "", ""}
+		row := []string{md(mdCode(h.Text)), fmt.Sprint(h.Line), model, "", "", "", ""}
 		if len(h.Contrasts) == 1 && h.Test.OK {
 			c := h.Contrasts[0]
 			row[3], row[4], row[5], row[6] = numfmt.Est(c.Estimate), numfmt.Est(c.SE), numfmt.Est(c.Low), numfmt.Est(c.High)

@@ -16,7 +16,7 @@ import (
 func build(r *runner.Result, dec *runner.Decisions, changes []string) *doc {
 	d := &doc{}
 	p := r.Plan
-	d.h(1, reportTitle(r))
+	d.h(1, mdText(reportTitle(r)))
 	writeSimulated(d, r)
 	writeRegistration(d, r)
 	d.p("This report was written by ordplan %s from the plan `%s` (sha256 `%s`) and %s. The plan fixed the candidate models and the decision rules before the models were fitted; the same plan and data give this report byte for byte.",
@@ -79,7 +79,7 @@ func writeSummary(d *doc, r *runner.Result) {
 	d.h(2, "Summary")
 	var items []string
 	for _, or := range r.Outcomes {
-		item := fmt.Sprintf("**%s** (`%s`): %s.", or.Outcome.Label, or.Outcome.Column, strings.TrimSuffix(or.Choice, "."))
+		item := fmt.Sprintf("**%s** (%s): %s.", mdText(or.Outcome.Label), mdCode(or.Outcome.Column), mdText(strings.TrimSuffix(or.Choice, ".")))
 		if or.Chosen != nil {
 			if s := negativeRows(or.Chosen.Result); s != "" {
 				item += fmt.Sprintf(" **This model %s** (its cumulative probabilities cross; see the chosen model's section).", s)
@@ -293,7 +293,7 @@ func joinWords[T fmt.Stringer](xs []T) string {
 // the parts (each part's hash is in run.json and decisions.json).
 func dataSentence(r *runner.Result) string {
 	if r.DataParts == nil {
-		return fmt.Sprintf("the data file `%s` (sha256 `%s`)", r.Plan.Data.File, r.DataHash)
+		return fmt.Sprintf("the data file %s (sha256 `%s`)", mdCode(r.Plan.Data.File), r.DataHash)
 	}
 	return fmt.Sprintf("the data held as %d parts read as one data set, %s (sha256 of the parts' sha256s `%s`; each part's in run.json)",
 		len(r.DataParts), partList(r), r.DataHash)
@@ -303,7 +303,7 @@ func dataSentence(r *runner.Result) string {
 func partList(r *runner.Result) string {
 	var names []string
 	for _, p := range r.DataParts {
-		names = append(names, "`"+p.File+"`")
+		names = append(names, mdCode(p.File))
 	}
 	if len(names) > 6 {
 		names = append(names[:3], "...", names[len(names)-1])

@@ -86,7 +86,7 @@ func writeMethods(d *doc, r *runner.Result) {
 			fitted = fmt.Sprintf("fitted by maximum pseudo-likelihood with the sampling weights of `%s`", p.Data.Weights)
 		}
 		s = append(s, fmt.Sprintf("The outcome %s (%d ordered categories, from %s to %s) was analysed with ordinal regression models %s (ordplan %s).",
-			or.Outcome.Label, len(ds.Categories), ds.Categories[0], ds.Categories[len(ds.Categories)-1], fitted, r.Version))
+			mdText(or.Outcome.Label), len(ds.Categories), mdText(ds.Categories[0]), mdText(ds.Categories[len(ds.Categories)-1]), fitted, r.Version))
 		switch {
 		case or.Imputed != nil && or.Imputed.Source != "chained":
 			// The rows read include every imputed set; each set is complete.
@@ -285,14 +285,14 @@ func writeReproducibility(d *doc, r *runner.Result) {
 	if cmd == "" {
 		cmd = "(not recorded: the report was not written by the ordplan command)"
 	} else {
-		cmd = "`" + strings.ReplaceAll(cmd, "`", "'") + "`"
+		cmd = md(mdCode(cmd))
 	}
 	rows := [][]string{
 		{"Program", "ordplan " + r.Version},
 		{"Built with", r.GoVersion},
 		{"Operating system / architecture", r.Platform},
 		{"Command line", cmd},
-		{"Plan", fmt.Sprintf("`%s`, SHA-256 `%s`", filepath.Base(p.Path), p.Hash)},
+		{"Plan", md(fmt.Sprintf("%s, SHA-256 `%s`", mdCode(filepath.Base(p.Path)), p.Hash))},
 		{"Data", dataCell(r)},
 		{"Seed", fmt.Sprint(p.Seed)},
 	}
@@ -312,9 +312,9 @@ func wordList[T fmt.Stringer](xs []T) []string {
 // dataCell is the data row of the reproducibility table.
 func dataCell(r *runner.Result) string {
 	if r.DataParts == nil {
-		return fmt.Sprintf("`%s`, SHA-256 `%s`", r.Plan.Data.File, r.DataHash)
+		return md(fmt.Sprintf("%s, SHA-256 `%s`", mdCode(r.Plan.Data.File), r.DataHash))
 	}
-	return fmt.Sprintf("%d parts (%s), SHA-256 of their SHA-256s `%s`", len(r.DataParts), partList(r), r.DataHash)
+	return md(fmt.Sprintf("%d parts (%s), SHA-256 of their SHA-256s `%s`", len(r.DataParts), partList(r), r.DataHash))
 }
 
 // onlyCumulativeLogit reports whether every candidate of a grid of these

@@ -15,7 +15,7 @@ import (
 // effects across boundaries for the chosen approach and what the chosen
 // model says.
 func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
-	d.h(2, "Outcome: "+or.Outcome.Label)
+	d.h(2, "Outcome: "+mdText(or.Outcome.Label))
 	sampling := r.Analysis != nil && r.Analysis.Errors.Sampling
 	writeData(d, or, sampling)
 	writeFreeSets(d, or)
@@ -50,8 +50,8 @@ func writeData(d *doc, or *runner.OutcomeResult, sampling bool) {
 		rowScale = float64(ds.N) / ds.NObs()
 		obs = fmt.Sprintf("The sampling weights sum to %s; the counts below are weighted, with the weights rescaled to sum to the %d rows used.", numfmt.Num(ds.NObs()), ds.N)
 	}
-	d.p("Outcome column `%s`, %d categories in this order: %s. %d rows read, %d used; %s. %s",
-		or.Outcome.Column, len(ds.Categories), strings.Join(ds.Categories, " < "), ds.RowsRead, ds.N, ds.DropSummary(), obs)
+	d.p("Outcome column %s, %d categories in this order: %s. %d rows read, %d used; %s. %s",
+		mdCode(or.Outcome.Column), len(ds.Categories), mdText(strings.Join(ds.Categories, " < ")), ds.RowsRead, ds.N, ds.DropSummary(), obs)
 	var rows [][]string
 	if ob := or.Observed; ob != nil {
 		// On imputed data: the observed values of the original file, not
@@ -172,7 +172,7 @@ func writeModelTable(d *doc, or *runner.OutcomeResult, sampling bool) {
 func modelRow(f *runner.FitEntry) []string {
 	id := f.ID
 	if f.Verdict == "chosen" {
-		id = "**" + id + "** (chosen)"
+		id = md("**" + mdText(id) + "** (chosen)")
 	}
 	if f.Result == nil {
 		return []string{id, "not fitted: " + f.Err, "", "", "", "", "", f.Verdict}

@@ -33,7 +33,7 @@ func PowerOutputs(pr *simulate.PowerResult) (map[string][]byte, error) {
 	if pr.Title != "" {
 		title += ": " + pr.Title
 	}
-	d.h(1, title)
+	d.h(1, mdText(title))
 	sizes := make([]string, len(pr.Sizes))
 	for i, n := range pr.Sizes {
 		sizes[i] = fmt.Sprint(n)
@@ -42,7 +42,7 @@ func PowerOutputs(pr *simulate.PowerResult) (map[string][]byte, error) {
 		SimulatedMark, pr.Replicates, strings.Join(sizes, ", "), pr.Seed, pr.Generator, pr.Alpha, pr.Version, pr.PlanFile, pr.PlanSHA256)
 	d.p("Every rate is a share of the %d replicates of a size, with its Monte Carlo standard error sqrt(p(1-p)/R) in brackets.", pr.Replicates)
 	for _, op := range pr.Outcomes {
-		d.h(2, "Outcome `"+op.Outcome+"`")
+		d.h(2, "Outcome "+mdCode(op.Outcome))
 		writePowerHypotheses(d, op)
 		writePowerModels(d, op, pr.Generator)
 		writePowerProblems(d, op)
@@ -81,7 +81,7 @@ func writePowerHypotheses(d *doc, op simulate.OutcomePower) {
 	head = append(head, "not testable")
 	var rows [][]string
 	for hi, h := range op.Sizes[0].Hypotheses {
-		row := []string{fmt.Sprintf("`%s` (%d)", h.Hypothesis, h.Line)}
+		row := []string{md(fmt.Sprintf("%s (%d)", mdCode(h.Hypothesis), h.Line))}
 		var un []string
 		for _, s := range op.Sizes {
 			row = append(row, fmtRate(s.Hypotheses[hi].Power))
@@ -135,7 +135,7 @@ func writePowerModels(d *doc, op simulate.OutcomePower, generator string) {
 	}
 	var rows [][]string
 	for _, m := range models {
-		name := "`" + m + "`"
+		name := md(mdCode(m))
 		if m == op.Generating {
 			name += " (generating structure)"
 		}

@@ -34,7 +34,7 @@ func writePredictions(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	levels, _ := or.Design.Coded(or.Design.Source(by))
 	d.p("One panel per level of `%s` (report.panels_by), so that the predictions can be compared across its levels, as an interaction needs.", by)
 	for _, l := range levels {
-		d.h(4, fmt.Sprintf("%s = %s", by, l))
+		d.h(4, mdText(fmt.Sprintf("%s = %s", by, l)))
 		writePredictionPanel(d, r, or, map[string]string{by: l}, fmt.Sprintf("%s = %s", by, l))
 	}
 }
@@ -62,8 +62,8 @@ func writePredictionPanel(d *doc, r *runner.Result, or *runner.OutcomeResult, fi
 	} else if len(xs) == 1 {
 		span = "is at its only value in the data"
 	}
-	d.p("Probability of each category under the chosen model when `%s` %s, with %s. Standard errors, in brackets, are delta-method approximations from the model's covariance matrix.",
-		pf.focus, span, pf.heldAt())
+	d.p("Probability of each category under the chosen model when %s %s, with %s. Standard errors, in brackets, are delta-method approximations from the model's covariance matrix.",
+		mdCode(pf.focus), span, mdText(pf.heldAt()))
 	head := []string{pf.focus}
 	for _, l := range res.Categories {
 		head = append(head, "P("+l+")")
@@ -78,12 +78,12 @@ func writePredictionPanel(d *doc, r *runner.Result, or *runner.OutcomeResult, fi
 		}
 		flag := "no"
 		if pred.Negative[i] {
-			flag = "**yes**"
+			flag = md("**yes**")
 			neg++
 		}
 		rows = append(rows, append(row, flag))
 	}
-	d.captioned("Predicted probabilities by "+pf.focus).table(head, rows)
+	d.captioned("Predicted probabilities by "+mdText(pf.focus)).table(head, rows)
 	if neg == 0 {
 		d.p("No predicted probability in this table is negative.")
 	} else {

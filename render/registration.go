@@ -2,7 +2,6 @@ package render
 
 import (
 	"fmt"
-	"strings"
 
 	"ordplan/plan/lock"
 	"ordplan/runner"
@@ -46,9 +45,9 @@ func writeRegistration(d *doc, r *runner.Result) {
 	for _, c := range st.Changes {
 		reason := c.Reason
 		if reason == "" {
-			reason = "**no stated reason**"
+			reason = md("**no stated reason**")
 		}
-		rows = append(rows, []string{"`" + c.Path + "`", codeCell(c.From), codeCell(c.To), reason})
+		rows = append(rows, []string{md(mdCode(c.Path)), md(codeCell(c.From)), md(codeCell(c.To)), reason})
 	}
 	d.table([]string{"Key", "Registered", "This run", "Stated reason"}, rows)
 	if f.Version != r.Version {
@@ -61,7 +60,7 @@ func codeCell(s string) string {
 	if s == lock.Absent {
 		return "(absent)"
 	}
-	return "`" + strings.ReplaceAll(s, "`", "'") + "`"
+	return mdCode(s)
 }
 
 // writeUnusedDeviations lists stated deviations that explain nothing.

@@ -53,12 +53,12 @@ func writeGenerating(d *doc, r *runner.Result) {
 		}
 		rows = append(rows, tau)
 		for k, col := range t.Columns {
-			row := []string{"`" + col + "`"}
+			row := []string{md(mdCode(col))}
 			for _, b := range t.Coefficients[k] {
 				row = append(row, numfmt.Est(b))
 			}
 			rows = append(rows, row)
 		}
-		d.captioned("Generating model of `"+t.Outcome+"`: cutpoints and coefficients at each boundary").table(head, rows)
+		d.captioned("Generating model of "+mdCode(t.Outcome)+": cutpoints and coefficients at each boundary").table(head, rows)
 	}
 }
