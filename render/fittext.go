@@ -85,6 +85,9 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 	if r.Status == fit.StatusNegativeProbs {
 		fmt.Fprintf(w, "Warning: %s.\n", r.Message)
 	}
+	if n := r.CollinearNote(); n != "" {
+		fmt.Fprintf(w, "Warning: %s.\n", n)
+	}
 	return nil
 }
 

@@ -164,6 +164,13 @@ func writeModelTable(d *doc, or *runner.OutcomeResult, sampling bool) {
 	for _, n := range or.Notes {
 		d.p("%s.", strings.TrimSuffix(n, "."))
 	}
+	for _, f := range or.Fits {
+		if !f.Auxiliary && f.Result != nil {
+			if n := f.Result.CollinearNote(); n != "" {
+				d.p("Warning, %s: %s.", f.ID, n)
+			}
+		}
+	}
 	if c := criteriaChart(d, or, sampling); c != nil {
 		d.charts("Chart in report.html: AIC and BIC of every candidate model.", c)
 	}

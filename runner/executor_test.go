@@ -72,7 +72,7 @@ func TestExecutorWithoutAnswer(t *testing.T) {
 	d := &fit.Data{J: 2, Y: []int{0, 1, 0, 1}, X: []float64{0, 0, 1, 1}, Predictors: []string{"x"}}
 	for _, sandwich := range []func(*fit.Result) error{nil, func(*fit.Result) error { return nil }} {
 		e := &FitEntry{ID: "cumulative/parallel/logit"}
-		err := fitGrid([]*FitEntry{e}, gridTarget{label: "y", data: d, sandwich: sandwich, remote: &remoteData{outcome: "y"}},
+		err := fitGrid([]*FitEntry{e}, gridTarget{label: "y", data: d, settle: sandwich, remote: &remoteData{outcome: "y"}},
 			Options{Executor: silentExecutor{}, Workers: 1})
 		if err != nil {
 			t.Fatal(err)

@@ -38,6 +38,9 @@ type FitRecord struct {
 	Starts       []StartJSON          `json:"starts,omitempty"`
 	StartsAgree  int                  `json:"starts_reaching_best,omitempty"`
 	PhiNotes     []string             `json:"phi_notes,omitempty"`
+	// Collinear: the terms whose slopes' variance inflation reaches
+	// fit.InflationLimit (near-collinearity).
+	Collinear []fit.Inflation `json:"collinear,omitempty"`
 }
 
 // CovarianceJSON is the covariance matrix of a fit's estimates, with the
@@ -71,7 +74,7 @@ func Record(r *fit.Result) FitRecord {
 		Status: string(r.Status), Message: r.Message, Converged: r.Converged, Iterations: r.Iterations,
 		MaxAbsScore: num(r.MaxAbsScore), NParams: r.NParams, NObs: r.NObs,
 		NegativeRows: r.NegativeRows, Condition: num(r.Condition), Separation: r.Separation,
-		StartsAgree: r.StartsAgreeing, PhiNotes: r.PhiNotes,
+		StartsAgree: r.StartsAgreeing, PhiNotes: r.PhiNotes, Collinear: r.Collinear,
 	}
 	for _, s := range r.Starts {
 		rec.Starts = append(rec.Starts, StartJSON{Label: s.Label, LogLik: num(s.LogLik), ReachedBest: s.ReachedBest, Iterations: s.Iterations, Reason: s.Reason})

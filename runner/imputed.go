@@ -220,7 +220,7 @@ func poolJobs(a *Analysis, sets []*data.Dataset, jobs []*FitEntry, run *ImputedR
 		}
 		perSet[k] = cp
 		grids[k] = gridPart{entries: cp, target: gridTarget{label: fmt.Sprintf("%s, imputed set %d/%d", outcome, k+1, run.M), data: d,
-			fit: a.Fit, sandwich: a.Errors.Sandwich(sets[k], d)}}
+			fit: a.Fit, settle: a.Errors.Sandwich(sets[k], d)}}
 	}
 	if err := run.remote(opt.Executor, grids, outcome); err != nil {
 		return nil, err

@@ -11,14 +11,15 @@ import (
 )
 
 // gridTarget says where a grid's fits are made: the data here, the fit
-// options and the sandwich step of the covariance policy, and how an
+// options and the step a usable fit takes (CovariancePolicy.Settle: the
+// collinearity check, then the policy's sandwich), and how an
 // Executor redoes the fits elsewhere (remote nil: here only).
 type gridTarget struct {
-	label    string // the outcome (and imputed set), for progress
-	data     *fit.Data
-	fit      fit.Options
-	sandwich func(*fit.Result) error
-	remote   *remoteData
+	label  string // the outcome (and imputed set), for progress
+	data   *fit.Data
+	fit    fit.Options
+	settle func(*fit.Result) error
+	remote *remoteData
 }
 
 // remoteData is what a job needs to redo a fit elsewhere: the data file by
@@ -36,7 +37,7 @@ type remoteData struct {
 // run's Executor when there is one and the target can be redone
 // elsewhere, else here, several at once. Either way a result lands in its
 // entry (so the order of completion does not matter), a usable fit gets
-// the sandwich step, and an error is kept in the entry.
+// the step of CovariancePolicy.Settle, and an error is kept in the entry.
 func fitGrid(entries []*FitEntry, t gridTarget, opt Options) error {
 	return fitGrids([]gridPart{{entries: entries, target: t}}, opt)
 }
@@ -66,16 +67,16 @@ func fitGrids(parts []gridPart, opt Options) error {
 	return nil
 }
 
-// settle stores a fit's result and error in its entry, after the sandwich
-// step of a usable fit. Neither a result nor an error (a faulty executor)
+// settle stores a fit's result and error in its entry, after the step a
+// usable fit takes (step: CovariancePolicy.Settle). Neither a result nor an error (a faulty executor)
 // is an error of the entry.
-func (e *FitEntry) settle(res *fit.Result, err error, sandwich func(*fit.Result) error) {
+func (e *FitEntry) settle(res *fit.Result, err error, step func(*fit.Result) error) {
 	if res == nil && err == nil {
 		err = errors.New("no result and no error came back for this fit (the executor lost it)")
 	}
 	e.Result = res
-	if err == nil && sandwich != nil && res.OK() {
-		err = sandwich(res)
+	if err == nil && step != nil && res.OK() {
+		err = step(res)
 	}
 	if err != nil {
 		e.Err = err.Error()
@@ -109,7 +110,7 @@ func (c *counter) finished(id string) {
 func localJobs(entries []*FitEntry, t gridTarget, opt Options) {
 	count := &counter{progress: opt.Progress, label: t.label}
 	settled := func(e *FitEntry, res *fit.Result, err error) {
-		e.settle(res, err, t.sandwich)
+		e.settle(res, err, t.settle)
 		count.finished(e.ID)
 	}
 	var models []fit.Model
@@ -143,8 +144,8 @@ func localJobs(entries []*FitEntry, t gridTarget, opt Options) {
 func remoteJobs(ex Executor, parts []gridPart, progress Progress) error {
 	var jobs []Job
 	type slot struct {
-		e        *FitEntry
-		sandwich func(*fit.Result) error
+		e      *FitEntry
+		settle func(*fit.Result) error
 	}
 	var slots []slot
 	for _, p := range parts {
@@ -159,7 +160,7 @@ func remoteJobs(ex Executor, parts []gridPart, progress Progress) error {
 			}
 			jobs = append(jobs, Job{Outcome: rd.outcome, Index: i, ID: id, Spec: e.Spec, DataFile: rd.dataFile,
 				DataHash: rd.dataHash, DataOptions: rd.dataOptions, Design: rd.design, FitOptions: p.target.fit})
-			slots = append(slots, slot{e, p.target.sandwich})
+			slots = append(slots, slot{e, p.target.settle})
 		}
 	}
 	var results []*fit.Result
@@ -178,7 +179,7 @@ func remoteJobs(ex Executor, parts []gridPart, progress Progress) error {
 		return fmt.Errorf("the executor returned %d results for %d jobs", len(results), len(jobs))
 	}
 	for k, s := range slots {
-		s.e.settle(results[k], errs[k], s.sandwich)
+		s.e.settle(results[k], errs[k], s.settle)
 	}
 	return nil
 }

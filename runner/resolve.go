@@ -122,6 +122,22 @@ func (c CovariancePolicy) Sandwich(ds *data.Dataset, d *fit.Data) func(*fit.Resu
 	}
 }
 
+// Settle is the step a usable fit of an outcome takes once fitted, in
+// every path that fits a plan's grid or the model of `ordplan fit`: the
+// check for near-collinearity of the outcome's terms on the model-based
+// covariance (fit.Result.CheckCollinearity), then the policy's sandwich,
+// if any (Sandwich).
+func (c CovariancePolicy) Settle(ds *data.Dataset, d *fit.Data, terms []fit.Term) func(*fit.Result) error {
+	sw := c.Sandwich(ds, d)
+	return func(r *fit.Result) error {
+		r.CheckCollinearity(terms)
+		if sw == nil {
+			return nil
+		}
+		return sw(r)
+	}
+}
+
 // ResolvePlan resolves a validated plan.
 func ResolvePlan(p *plan.Plan) *Analysis {
 	a := &Analysis{Source: p.Path, Plan: true, DataFile: p.Data.Name(), DataPath: p.Data.Path,

@@ -116,7 +116,7 @@ func runOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash 
 	// 2. The grid of candidate fits and the auxiliary fits the tests need.
 	jobs, notes := gridJobs(an, or.Terms, or.FreeSets, backward)
 	or.Notes = append(or.Notes, notes...)
-	target := gridTarget{label: oc.Column, data: or.FitData, fit: fopt, sandwich: sandwich,
+	target := gridTarget{label: oc.Column, data: or.FitData, fit: fopt, settle: an.Errors.Settle(ds, or.FitData, or.Terms),
 		remote: &remoteData{outcome: oc.Column, dataFile: an.DataFile, dataHash: hash, dataOptions: r.Options}}
 	if !dz.Trivial() {
 		target.remote.design = dz.Freeze(r.Design)

@@ -118,8 +118,8 @@ func fitOne(s SingleFit) (*fit.Result, *Loaded, *Analysis, error) {
 	if err != nil {
 		return nil, ld, a, a.designError(a.Outcomes[0], ld.Design, err, "")
 	}
-	if sw := a.Errors.Sandwich(ds, ld.FitData); sw != nil && res.OK() {
-		if err := sw(res); err != nil {
+	if res.OK() {
+		if err := a.Errors.Settle(ds, ld.FitData, terms)(res); err != nil {
 			return nil, ld, a, err
 		}
 	}

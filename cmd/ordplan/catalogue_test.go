@@ -213,11 +213,13 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		fmt.Fprintf(&two, "%s,%s,%s,%s\n", f[0], other, f[1], f[2])
 	}
 	var scales strings.Builder
-	scales.WriteString("y,a,b,e90,em90,e160,em160,em300,far\n")
-	for _, r := range rows {
+	scales.WriteString("y,a,b,e90,em90,e160,em160,em300,far,near\n")
+	for i, r := range rows {
 		f := strings.Split(r, ",")
 		a, _ := strconv.ParseFloat(f[1], 64)
-		fmt.Fprintf(&scales, "%s,%s,%s,%se90,%se-90,%se160,%se-160,%se-300,%s\n", f[0], f[1], f[2], f[1], f[1], f[1], f[1], f[1], strconv.FormatFloat(1e6+a, 'f', 4, 64))
+		// near: a plus a wobble of at most 2e-4 (M19).
+		near := strconv.FormatFloat(a+1e-4*float64((i*7)%5-2), 'f', 6, 64)
+		fmt.Fprintf(&scales, "%s,%s,%s,%se90,%se-90,%se160,%se-160,%se-300,%s,%s\n", f[0], f[1], f[2], f[1], f[1], f[1], f[1], f[1], strconv.FormatFloat(1e6+a, 'f', 4, 64), near)
 	}
 	// Levels: region is a merging of site's levels (n, e: ne; s, w: sw).
 	var levels strings.Builder
@@ -797,6 +799,8 @@ func catalogue(dir string) (items []badInput) {
 					}
 				}
 			}},
+		{id: "M19", name: "near-collinear predictors (near = a plus a wobble of 2e-4)", args: fitArgs(d("scales.csv"), "--predictors", "a,near,b"), code: 0,
+			want: []string{"Status           ok", "Warning: near-collinearity: the slopes of a and near have variance inflation ", "(at least 100: standard errors at least 10 times those of columns unrelated to the other terms)"}},
 		{id: "M3", name: "constant predictor in a plan run", args: []string{"run"}, plan: edit("[a, b]", "[a, c]"), code: 1,
 			want: []string{`"c" is constant`}},
 		{id: "M4", name: "complete separation", args: fitArgs(d("sep.csv"), "--predictors", "x,z"), code: 1,

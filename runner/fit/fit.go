@@ -173,6 +173,9 @@ type Result struct {
 	NegativeRows  int     // rows with a negative predicted category probability
 	Separation    *Separation
 	SupLogLik     float64 // log-likelihood reached when there is no finite maximum
+	// Collinear: the terms whose slopes' variance inflation is at least
+	// InflationLimit (CheckCollinearity; nil when none or not checked).
+	Collinear []Inflation
 
 	// Models with constrained predictors: every start of the search for the
 	// maximum, the number that reached the best log-likelihood (within
