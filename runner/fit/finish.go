@@ -452,7 +452,9 @@ func risingDirection(loglik evalFunc, theta []float64, ll float64, minVec, info 
 		}
 	}
 	// The estimates scaled up: complete separation; then the large
-	// estimates alone.
+	// estimates alone. Each is scaled by 2, or, where the log-likelihood
+	// cannot be evaluated there (a link's tail beyond the floating-point
+	// range, as cloglog's log(1 - F) = -e^z), by 1.25 or 1.05.
 	for _, only := range [][]bool{nil, large} {
 		dir := make([]float64, P)
 		for i := range dir {
@@ -460,13 +462,19 @@ func risingDirection(loglik evalFunc, theta []float64, ll float64, minVec, info 
 				dir[i] = theta[i]
 			}
 		}
-		a := loglik(addScaled(theta, dir, 1), 0)
-		if !a.bad && a.ll >= ll-1e-9*math.Max(1, math.Abs(ll)) {
-			v := make([]float64, P)
-			for i := range v {
-				v[i] = dir[i] * math.Sqrt(math.Max(info[i*P+i], 0))
+		for _, t := range []float64{1, 0.25, 0.05} {
+			a := loglik(addScaled(theta, dir, t), 0)
+			if a.bad {
+				continue
 			}
-			return v
+			if a.ll >= ll-1e-9*math.Max(1, math.Abs(ll)) {
+				v := make([]float64, P)
+				for i := range v {
+					v[i] = dir[i] * math.Sqrt(math.Max(info[i*P+i], 0))
+				}
+				return v
+			}
+			break
 		}
 	}
 	return nil

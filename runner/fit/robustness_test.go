@@ -340,6 +340,45 @@ func TestSeparationInOneEquation(t *testing.T) {
 	}
 }
 
+// Complete separation under every link: 11 rows (a seeded invented
+// study) whose categories the index x'b with b = (61.165, 167.889,
+// 210.307, 146.973) orders with room between them (checked here by hand:
+// category 1 at 138.1, category 2 within [189.5, 222.2], category 3 from
+// 277.6; cutpoints 163.8 and 250.4 fit between), so scaling (tau, b) up
+// drives every row's probability to 1. The adjacent cloglog fit was
+// reported converged with log-likelihood 0 and errors near 1e6: its
+// log-likelihood at twice the estimates overflows (log(1 - F) = -e^z), so
+// the check that scaling the estimates up loses nothing could not be made.
+func TestCompleteSeparationEveryLink(t *testing.T) {
+	rows := [][5]float64{ // y, x, b, g.v, g.w
+		{3, 3.59, 0, 0, 1}, {2, 0.54, 1, 0, 0}, {3, -0.57, 1, 0, 1}, {2, 1.23, 0, 0, 1}, {2, 0.72, 0, 0, 1}, {3, 1.81, 1, 0, 0},
+		{3, 1.64, 0, 1, 0}, {1, -1.18, 0, 1, 0}, {3, 0.85, 1, 0, 1}, {3, -0.61, 1, 0, 1}, {2, -0.34, 0, 1, 0},
+	}
+	b, tau := []float64{61.165, 167.889, 210.307, 146.973}, []float64{163.849, 250.378}
+	d := &Data{J: 3, Predictors: []string{"x", "b", "g.v", "g.w"}}
+	for _, r := range rows {
+		eta := b[0]*r[1] + b[1]*r[2] + b[2]*r[3] + b[3]*r[4]
+		y := int(r[0]) - 1
+		if (y > 0 && eta <= tau[y-1]) || (y < 2 && eta >= tau[y]) {
+			t.Fatalf("the certificate does not separate row %v (index %.4g)", r, eta)
+		}
+		d.Y = append(d.Y, y)
+		d.X = append(d.X, r[1], r[2], r[3], r[4])
+	}
+	for _, c := range []Comparison{Cumulative, Stage, Adjacent} {
+		for _, l := range []Link{Logit, Probit, Cloglog, Loglog, Cauchy} {
+			m := Model{Comparison: c, Link: l, Effects: []Effect{Parallel, Parallel, Parallel, Parallel}}
+			r, err := Fit(d, m, Options{Workers: 1})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if r.Status != StatusNoFiniteMaximum || r.Separation == nil {
+				t.Errorf("%s: status %s, log-likelihood %v, message %q", m.Name(), r.Status, r.LogLik, r.Message)
+			}
+		}
+	}
+}
+
 // A fit stopped by the iteration limit says so in its status and message
 // and carries no log-likelihood.
 func TestRobustnessIterationLimit(t *testing.T) {
