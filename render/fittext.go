@@ -55,6 +55,9 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 		fmt.Fprintf(tw, "Observations\t%s\n", numfmt.Count(r.NObs))
 	}
 	fmt.Fprintf(tw, "Status\t%s\n", statusLine(r))
+	if len(r.Centred) > 0 {
+		fmt.Fprintf(tw, "Centred\t%s fitted less the mean inside the fit (far from zero for the spread): estimates, errors and max |score| are in the data's units; the information's condition number (JSON) is that of the centred parameters\n", strings.Join(r.Centred, ", "))
+	}
 	if r.OK() {
 		fmt.Fprintf(tw, "Log-likelihood\t%s\n", numfmt.Fixed(r.LogLik, 6))
 		fmt.Fprintf(tw, "Parameters\t%d\n", r.NParams)

@@ -32,12 +32,18 @@ type FitRecord struct {
 	Covariance   *CovarianceJSON      `json:"covariance,omitempty"`
 	Phi          map[string][]float64 `json:"phi,omitempty"`
 	NegativeRows int                  `json:"rows_with_negative_probabilities"`
-	Condition    *float64             `json:"information_condition"`
-	SupLogLik    *float64             `json:"loglik_supremum,omitempty"`
-	Separation   *fit.Separation      `json:"separation,omitempty"`
-	Starts       []StartJSON          `json:"starts,omitempty"`
-	StartsAgree  int                  `json:"starts_reaching_best,omitempty"`
-	PhiNotes     []string             `json:"phi_notes,omitempty"`
+	// Condition: of the information scaled to unit diagonal; of the
+	// centred parameters when Centred names predictors.
+	Condition *float64 `json:"information_condition"`
+	// Centred: the predictors fitted less their mean inside the fit (far
+	// from zero for their spread); the estimates, errors and max |score|
+	// are in the data's units.
+	Centred     []string        `json:"centred_predictors,omitempty"`
+	SupLogLik   *float64        `json:"loglik_supremum,omitempty"`
+	Separation  *fit.Separation `json:"separation,omitempty"`
+	Starts      []StartJSON     `json:"starts,omitempty"`
+	StartsAgree int             `json:"starts_reaching_best,omitempty"`
+	PhiNotes    []string        `json:"phi_notes,omitempty"`
 	// Collinear: the terms whose slopes' variance inflation reaches
 	// fit.InflationLimit (near-collinearity).
 	Collinear []fit.Inflation `json:"collinear,omitempty"`
@@ -74,7 +80,7 @@ func Record(r *fit.Result) FitRecord {
 		Status: string(r.Status), Message: r.Message, Converged: r.Converged, Iterations: r.Iterations,
 		MaxAbsScore: num(r.MaxAbsScore), NParams: r.NParams, NObs: r.NObs,
 		NegativeRows: r.NegativeRows, Condition: num(r.Condition), Separation: r.Separation,
-		StartsAgree: r.StartsAgreeing, PhiNotes: r.PhiNotes, Collinear: r.Collinear,
+		StartsAgree: r.StartsAgreeing, PhiNotes: r.PhiNotes, Collinear: r.Collinear, Centred: r.Centred,
 	}
 	for _, s := range r.Starts {
 		rec.Starts = append(rec.Starts, StartJSON{Label: s.Label, LogLik: num(s.LogLik), ReachedBest: s.ReachedBest, Iterations: s.Iterations, Reason: s.Reason})

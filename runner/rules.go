@@ -836,6 +836,9 @@ func (env *ruleEnv) judgeUnstable(r plan.Rule, res *fit.Result) (bool, string) {
 		env.num("condition", res.Condition)
 		env.num("max_condition", r.MaxCondition)
 		s := fmt.Sprintf("information condition %s", numfmt.Num(res.Condition))
+		if len(res.Centred) > 0 {
+			s += fmt.Sprintf(" (of the parameters with %s centred inside the fit)", strings.Join(res.Centred, ", "))
+		}
 		if !(res.Condition <= r.MaxCondition) {
 			s += fmt.Sprintf(" > %g", r.MaxCondition)
 			keep = false

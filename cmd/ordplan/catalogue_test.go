@@ -771,7 +771,7 @@ func catalogue(dir string) (items []badInput) {
 		{id: "M17", name: "a categorical term whose levels merge another's", args: fitArgs(d("levels.csv"), "--predictors", "a,site|levels=n/e/s/w,region|levels=ne/sw"), code: 1,
 			want: []string{`levels.csv: --predictors item 3: term "region" is collinear with term "site" and the constant: its column "region.sw" is a linear combination of "site.s", "site.w" and the constant, so their effects cannot be told apart; remove one of the terms`}},
 		{id: "M18", name: "a predictor far from zero for its spread (1e6 + a, a within [-2, 2])", args: fitArgs(d("scales.csv"), "--predictors", "far,b", "--json"), code: 0,
-			want: []string{`"status": "ok"`}, check: func(t *testing.T, dir, out, errs string) {
+			want: []string{`"status": "ok"`, `"centred_predictors": [`}, check: func(t *testing.T, dir, out, errs string) {
 				// The linear predictor's identity: tau_m - b_a (1e6 + a) - ... =
 				// (tau_m - 1e6 b_a) - b_a a - ...: the fit on a, with the
 				// cutpoints moved by 1e6 b_a, and the same errors for the slopes.

@@ -138,11 +138,14 @@ func (c *centring) start(m Model, J int, predictors []string, theta []float64) [
 }
 
 // restore gives the result r of a fit in centred coordinates in the units
-// of the data: the cutpoints tau_m = tau'_m + c'b_m and the covariance
-// G V G' with the Jacobian G of that map. The log-likelihood, the slopes,
-// the common factors and their errors are the same in both coordinates.
-// (The score summary and the condition number stay those of the centred
-// coordinates, where the iterations ran.) r's slices are replaced, never
+// of the data: the cutpoints tau_m = tau'_m + c'b_m, the covariance
+// G V G' with the Jacobian G of that map, and the score G^-T g' (the
+// cutpoints' unchanged, a slope parameter's less sum_m g'_tau_m times the
+// derivative of c'b_m by it) with its largest absolute value. The
+// log-likelihood, the slopes, the common factors and their errors are the
+// same in both coordinates. The condition number stays that of the
+// centred coordinates, where the iterations ran (Result.Condition), and
+// r.Centred names the predictors shifted. r's slices are replaced, never
 // written, so that a copy kept for later fits keeps its values.
 func (c *centring) restore(r *Result) {
 	if r == nil {
@@ -163,10 +166,31 @@ func (c *centring) restore(r *Result) {
 		cut[j] = est[ly.cut[j]]
 	}
 	r.Estimates, r.Cutpoints = est, cut
+	r.Centred = nil
+	for k, s := range c.shift {
+		if s != 0 && k < len(r.Predictors) {
+			r.Centred = append(r.Centred, r.Predictors[k])
+		}
+	}
+	G := c.jacobian(ly, r.Estimates)
+	if len(r.score) == P {
+		g := append([]float64(nil), r.score...)
+		for j := 0; j < q; j++ {
+			gc, row := r.score[ly.cut[j]], G[ly.cut[j]*P:(ly.cut[j]+1)*P]
+			for a, v := range row {
+				if a != ly.cut[j] && v != 0 {
+					g[a] -= v * gc
+				}
+			}
+		}
+		r.score, r.MaxAbsScore = g, 0
+		for _, v := range g {
+			r.MaxAbsScore = math.Max(r.MaxAbsScore, math.Abs(v))
+		}
+	}
 	if len(r.Cov) != P*P {
 		return
 	}
-	G := c.jacobian(ly, r.Estimates)
 	cov := make([]float64, P*P)
 	// cov = G V G', skipping G's zeros so that the NaN rows of parameters
 	// not identified reach only the cutpoints that depend on them.

@@ -113,3 +113,67 @@ func TestPredictorFarFromZero(t *testing.T) {
 		}
 	}
 }
+
+// TestCentredScoreInDataUnits: restore gives the score of the parameters
+// as reported, by the chain rule: g = D' g' with D the derivative of the
+// centred parameters theta' (tau'_m = tau_m - c'b_m) by the reported ones,
+// here by central differences of the map (centring.start), for every
+// effect structure (a constrained group's phi and gamma enter c'b_m as a
+// product); the largest absolute value is MaxAbsScore, the condition
+// number is left as the centred coordinates' and Centred names the
+// shifted predictors.
+func TestCentredScoreInDataUnits(t *testing.T) {
+	preds := []string{"a", "far", "b"}
+	c := &centring{shift: []float64{0, 1e6, -2.5e4}}
+	for _, m := range []Model{
+		{Comparison: Cumulative, Link: Logit, Effects: []Effect{Parallel, Parallel, Nonparallel}},
+		{Comparison: Adjacent, Link: Probit, Effects: []Effect{Constrained, Constrained, Parallel}},
+	} {
+		const J = 4
+		ly, err := newLayout(m, J, preds)
+		if err != nil {
+			t.Fatal(err)
+		}
+		P := len(ly.params)
+		theta, gc := make([]float64, P), make([]float64, P)
+		for i := range theta {
+			theta[i] = 0.3 + 0.1*float64(i)
+			gc[i] = math.Pow(-1, float64(i)) * 1e-9 * float64(i+1)
+		}
+		// theta is in the data's units; the fit's estimates are centred.
+		centred := c.start(m, J, preds, theta)
+		r := &Result{Model: m, J: J, Predictors: preds, Estimates: centred, NParams: P, score: gc, Condition: 123}
+		for _, g := range gc {
+			r.MaxAbsScore = math.Max(r.MaxAbsScore, math.Abs(g))
+		}
+		c.restore(r)
+		for i := range theta {
+			if !near(r.Estimates[i], theta[i], 1e-12, 1e-9) {
+				t.Fatalf("%v: estimate %d %g, want %g", m, i, r.Estimates[i], theta[i])
+			}
+		}
+		want, most := make([]float64, P), 0.0
+		for a := 0; a < P; a++ {
+			h := 1e-3
+			up, dn := append([]float64(nil), theta...), append([]float64(nil), theta...)
+			up[a] += h
+			dn[a] -= h
+			tu, td := c.start(m, J, preds, up), c.start(m, J, preds, dn)
+			for b := 0; b < P; b++ {
+				want[a] += gc[b] * (tu[b] - td[b]) / (2 * h)
+			}
+			most = math.Max(most, math.Abs(want[a]))
+		}
+		for a := range want {
+			if !near(r.score[a], want[a], 1e-7, 1e-20) {
+				t.Errorf("%v: score %s %g, chain rule by differences %g", m, ly.params[a].name, r.score[a], want[a])
+			}
+		}
+		if !near(r.MaxAbsScore, most, 1e-7, 0) || r.Condition != 123 {
+			t.Errorf("%v: max |score| %g, want %g; condition %g", m, r.MaxAbsScore, most, r.Condition)
+		}
+		if len(r.Centred) != 2 || r.Centred[0] != "far" || r.Centred[1] != "b" {
+			t.Errorf("centred %v", r.Centred)
+		}
+	}
+}

@@ -260,6 +260,7 @@ func (src *source) certify(r *Result, ly *layout, st newtonState, info []float64
 // fillEstimates sets the score summary, cutpoints, effects matrix and
 // common factors of a result from the Newton state.
 func (ly *layout) fillEstimates(r *Result, m Model, st newtonState) {
+	r.score = st.grad
 	for _, g := range st.grad {
 		r.MaxAbsScore = math.Max(r.MaxAbsScore, math.Abs(g))
 	}

@@ -166,9 +166,19 @@ type Result struct {
 	Phi       [][]float64 // per constraint group: phi_1..phi_{J-1} (phi_1 = 1)
 	PhiGroups []string
 
-	MaxAbsScore   float64
-	Decrement     float64
-	Condition     float64 // of the information scaled to unit diagonal
+	MaxAbsScore float64 // of the parameters as reported (in the data's units when Centred)
+	Decrement   float64
+	// Condition is that of the information scaled to unit diagonal, in the
+	// coordinates the iterations ran in: of the centred parameters when
+	// Centred names predictors (there the cutpoints are tau'_m = tau_m -
+	// c'b_m; in the data's units the condition would mostly measure how
+	// far from zero those predictors lie, which centring takes out).
+	Condition float64
+	// Centred names the predictors fitted centred inside the fit (less
+	// their weighted mean, being further from zero than 1e3 standard
+	// deviations); the estimates, errors and MaxAbsScore are given back in
+	// the data's units.
+	Centred       []string
 	MinFittedProb float64 // smallest fitted probability of an observed category
 	NegativeRows  int     // rows with a negative predicted category probability
 	Separation    *Separation
@@ -188,6 +198,10 @@ type Result struct {
 	// the maximum (StatusNotIdentified), phi normalized by another equation.
 	PhiOther []PhiNormalization
 
+	// score: the score at the estimates, in the coordinates of the
+	// iterations (nil when not known: a fit through another
+	// parametrization), which centring's restore turns into the data's.
+	score []float64
 	// rank: the sums of the rank check of the rows fitted, which a refit
 	// of the same rows with indicator columns (LipsitzTest) starts from
 	// (nil for fits made elsewhere, such as on a queue's workers).

@@ -267,7 +267,7 @@ func (a *auxiliary) normalizedFit(src *source, d *Data, m Model, ly *layout, pr 
 	r := *res
 	r.Iterations = st.iters + ast.iters
 	r.Reason = "converged"
-	r.MaxAbsScore = 0
+	r.MaxAbsScore, r.score = 0, nil // the rank map's coordinates
 	for _, g := range ast.grad {
 		r.MaxAbsScore = math.Max(r.MaxAbsScore, math.Abs(g))
 	}
