@@ -44,8 +44,12 @@ const (
 	// MaxReplyBytes bounds a reply kept in the replies store.
 	MaxReplyBytes = 1 << 30
 	// formatVersion enters every batch id and every seal: replies written
-	// by an incompatible version are never reused.
-	formatVersion = "ordplan-queue/2"
+	// by an incompatible version are never reused, and a worker of another
+	// version rejects a task instead of answering it. Raise it whenever a
+	// message's meaning changes, not only its fields: a worker that drops a
+	// field it does not know answers a different question (3: a partition
+	// task's Theta is in coordinates centred by its Shift).
+	formatVersion = "ordplan-queue/3"
 )
 
 func jobSubject(batch string, index int) string {
