@@ -25,7 +25,7 @@ var modelWords = map[chained.Method]string{
 // imputation assumes.
 func writeChained(d *doc, ch *runner.ChainedRecord, rows int, dz *design.Design) {
 	d.p("The imputed sets were made by this run by chained equations (fully conditional specification; van Buuren 2018): %d sets, each after %d iterations through the incomplete columns, with seed %d (set s draws from its own stream, so the sets do not depend on the number of workers). Of the %d rows, %d (%s) had a missing value in the outcome or a predictor column and were imputed rather than dropped. Each incomplete column was imputed from a model of it given the outcome and every other column used, as main effects of the raw columns; its parameters were drawn from their approximate posterior for every imputation, so that the sets reflect the uncertainty of the imputation model. Columns were visited in the order %s (fewest missing values first).",
-		ch.Sets, ch.Iterations, ch.Seed, rows, ch.RowsIncomplete, sharePct(ch.RowsIncomplete, rows), "`"+strings.Join(ch.Visits, "`, `")+"`")
+		ch.Sets, ch.Iterations, ch.Seed, rows, ch.RowsIncomplete, sharePct(ch.RowsIncomplete, rows), codeList(ch.Visits))
 	var tab [][]string
 	for _, m := range ch.Models {
 		w := modelWords[m.Method]

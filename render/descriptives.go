@@ -186,8 +186,8 @@ func writeMissing(d *doc, or *runner.OutcomeResult) {
 	}
 	incomplete := mt.Rows - complete
 	if or.Imputed != nil {
-		d.p("Missing values in the columns the analysis uses, in the original data `%s`. Of %d rows, %d (%s) miss at least one used column; the analysis uses the %d imputed data sets instead (see Multiple imputation).",
-			or.Data.File, mt.Rows, incomplete, sharePct(incomplete, mt.Rows), or.Imputed.M)
+		d.p("Missing values in the columns the analysis uses, in the original data %s. Of %d rows, %d (%s) miss at least one used column; the analysis uses the %d imputed data sets instead (see Multiple imputation).",
+			mdCode(or.Data.File), mt.Rows, incomplete, sharePct(incomplete, mt.Rows), or.Imputed.M)
 	} else {
 		d.p("Missing values in the columns the analysis uses. Of %d rows, %d (%s) miss at least one used column; they were dropped before any fit, and the %d complete rows (%s) are analysed.",
 			mt.Rows, incomplete, sharePct(incomplete, mt.Rows), complete, sharePct(complete, mt.Rows))
@@ -272,10 +272,10 @@ func writeImputation(d *doc, or *runner.OutcomeResult, sampling bool) {
 		return
 	}
 	d.h(3, "Multiple imputation")
-	src := fmt.Sprintf("stacked in `%s` by the imputation number in column `%s`", im.Files[0], im.Column)
+	src := fmt.Sprintf("stacked in %s by the imputation number in column %s", mdCode(im.Files[0]), mdCode(im.Column))
 	switch im.Source {
 	case "files":
-		src = "one file each: `" + strings.Join(im.Files, "`, `") + "`"
+		src = "one file each: " + codeList(im.Files)
 	case "chained":
 		src = "imputed by this run from `" + im.Files[0] + "`, as described below"
 	}

@@ -310,3 +310,12 @@ func (d *doc) allCharts() []*chart {
 	}
 	return out
 }
+
+// codeList is names as code spans separated by commas.
+func codeList(names []string) string {
+	spans := make([]string, len(names))
+	for i, n := range names {
+		spans[i] = mdCode(n)
+	}
+	return strings.Join(spans, ", ")
+}

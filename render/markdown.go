@@ -19,8 +19,8 @@ func build(r *runner.Result, dec *runner.Decisions, changes []string) *doc {
 	d.h(1, mdText(reportTitle(r)))
 	writeSimulated(d, r)
 	writeRegistration(d, r)
-	d.p("This report was written by ordplan %s from the plan `%s` (sha256 `%s`) and %s. The plan fixed the candidate models and the decision rules before the models were fitted; the same plan and data give this report byte for byte.",
-		r.Version, dec.Plan.File, p.Hash, dataSentence(r))
+	d.p("This report was written by ordplan %s from the plan %s (sha256 `%s`) and %s. The plan fixed the candidate models and the decision rules before the models were fitted; the same plan and data give this report byte for byte.",
+		r.Version, mdCode(dec.Plan.File), p.Hash, dataSentence(r))
 	if r.Started != "" {
 		d.p("Run started at %s (the plan asks for a timestamp, so reruns differ in this line and in run.json).", r.Started)
 	}
@@ -176,7 +176,7 @@ func independenceSentence(r *runner.Result) string {
 			}
 			g = max(g, len(seen))
 		}
-		s := fmt.Sprintf("Each model's likelihood treats the observations as independent given the predictors; it assumes %s The standard errors, intervals, Wald tests and the plan's hypotheses allow for correlation within the %d clusters of `%s` (cluster-robust sandwich), but the likelihood-ratio, score, Brant and Wolfe-Gould tests and AIC and BIC do not: they take every observation as independent, and reject too often when observations of a cluster are alike.", shape, g, r.Plan.Data.Cluster)
+		s := fmt.Sprintf("Each model's likelihood treats the observations as independent given the predictors; it assumes %s The standard errors, intervals, Wald tests and the plan's hypotheses allow for correlation within the %d clusters of %s (cluster-robust sandwich), but the likelihood-ratio, score, Brant and Wolfe-Gould tests and AIC and BIC do not: they take every observation as independent, and reject too often when observations of a cluster are alike.", shape, g, mdCode(r.Plan.Data.Cluster))
 		if g < 40 {
 			s += fmt.Sprintf(" With %d clusters (fewer than about 40) the cluster-robust errors themselves tend to be too small.", g)
 		}

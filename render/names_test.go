@@ -190,3 +190,38 @@ rules:
 		}
 	}
 }
+
+// TestBacktickNamesInCodeSpans: a data file and a cluster column whose
+// names hold backticks are shown whole in report.html, in code spans
+// fenced by more backticks than the name holds (CommonMark's code-span
+// rule), not cut into pieces by their own backticks.
+func TestBacktickNamesInCodeSpans(t *testing.T) {
+	dir := t.TempDir()
+	var data strings.Builder
+	data.WriteString("y,x,\"g`rp\"\n")
+	for i := 0; i < 240; i++ {
+		x := float64((i*37)%100) / 20
+		fmt.Fprintf(&data, "%d,%g,%d\n", (i*7+int(x))%3, x, i%30)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "d`1.csv"), []byte(data.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	src := "version: 1\ndata: {file: \"d`1.csv\", cluster: \"g`rp\"}\n" +
+		"outcomes:\n  - column: y\n    categories: [\"0\", \"1\", \"2\"]\n" +
+		"predictors: [x]\ncovariance: clustered\n" +
+		"models: {approaches: [cumulative], effects: [parallel], links: [logit]}\n" +
+		"tests: {parallel_lines: []}\nrules:\n  - choose: {by: aic}\n"
+	files := renderSource(t, dir, src, 1)
+	md := string(files["report.md"])
+	for _, want := range []string{"``d`1.csv``", "``g`rp``"} {
+		if !strings.Contains(md, want) {
+			t.Errorf("report.md lacks the code span %s", want)
+		}
+	}
+	text := visibleText(string(files["report.html"]))
+	for _, want := range []string{"d`1.csv", "clusters of g`rp"} {
+		if !strings.Contains(text, want) {
+			t.Errorf("report.html does not show %q", want)
+		}
+	}
+}

@@ -72,8 +72,8 @@ func writeData(d *doc, or *runner.OutcomeResult, sampling bool) {
 				total += w
 			}
 		}
-		d.p("The counts below, and the predictors by outcome category, describe the observed values of the original data `%s` (%s observations with the outcome observed, %s with it missing), not an imputed set; shares are of the observed outcomes.",
-			ob.File, numfmt.Count(total), numfmt.Count(missing))
+		d.p("The counts below, and the predictors by outcome category, describe the observed values of the original data %s (%s observations with the outcome observed, %s with it missing), not an imputed set; shares are of the observed outcomes.",
+			mdCode(ob.File), numfmt.Count(total), numfmt.Count(missing))
 		for j, l := range ob.Categories {
 			share := "0.0%"
 			if total > 0 {

@@ -27,12 +27,12 @@ func writePredictions(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		d.p("On imputed data the curves and the table below are at the pooled estimates, with delta-method errors from the total (within + between) covariance; to first order this equals pooling the predictions of each set. The predictions for new rows are pooled set by set.")
 	}
 	by := r.Plan.Report.PanelsBy
-	if by == "" || or.Design == nil || or.Design.Source(by) < 0 {
+	if by == "" || or.Design == nil || or.Design.Source(mdCode(by)) < 0 {
 		writePredictionPanel(d, r, or, nil, "")
 		return
 	}
 	levels, _ := or.Design.Coded(or.Design.Source(by))
-	d.p("One panel per level of `%s` (report.panels_by), so that the predictions can be compared across its levels, as an interaction needs.", by)
+	d.p("One panel per level of %s (report.panels_by), so that the predictions can be compared across its levels, as an interaction needs.", by)
 	for _, l := range levels {
 		d.h(4, mdText(fmt.Sprintf("%s = %s", by, l)))
 		writePredictionPanel(d, r, or, map[string]string{by: l}, fmt.Sprintf("%s = %s", by, l))
@@ -87,7 +87,7 @@ func writePredictionPanel(d *doc, r *runner.Result, or *runner.OutcomeResult, fi
 	if neg == 0 {
 		d.p("No predicted probability in this table is negative.")
 	} else {
-		d.p("**Warning:** at %d of these %d values of `%s` the model predicts a negative probability for some category (its cumulative probabilities cross there). Those rows are not valid probability distributions; read the model with care in that region.", neg, len(xs), pf.focus)
+		d.p("**Warning:** at %d of these %d values of %s the model predicts a negative probability for some category (its cumulative probabilities cross there). Those rows are not valid probability distributions; read the model with care in that region.", neg, len(xs), mdCode(pf.focus))
 	}
 	level, z := confidence(r)
 	c, err := predictionChart(d, or, pf, label, level, z)
@@ -101,7 +101,7 @@ func writePredictionPanel(d *doc, r *runner.Result, or *runner.OutcomeResult, fi
 			cs = append(cs, cc)
 		}
 	}
-	d.charts(fmt.Sprintf("Charts in report.html: predicted probability of each category against `%s`.", pf.focus), cs...)
+	d.charts(fmt.Sprintf("Charts in report.html: predicted probability of each category against %s.", mdCode(pf.focus)), cs...)
 }
 
 var predictionGrid = opts.Grid{Left: "6%", Right: "8%", Top: "70", Bottom: "70"}

@@ -18,7 +18,7 @@ func writeRegistration(d *doc, r *runner.Result) {
 	}
 	f := st.Lock
 	frozen := func() string {
-		s := fmt.Sprintf("`%s`, frozen at %s by ordplan %s, canonical sha256 `%s`", st.LockFile, f.FrozenAt, f.Version, f.SHA256)
+		s := fmt.Sprintf("%s, frozen at %s by ordplan %s, canonical sha256 `%s`", mdCode(st.LockFile), f.FrozenAt, f.Version, f.SHA256)
 		if f.Registration != "" {
 			s += ", registration " + f.Registration
 		}
@@ -26,7 +26,7 @@ func writeRegistration(d *doc, r *runner.Result) {
 	}
 	switch st.State {
 	case lock.StateNone:
-		d.p("**Registered plan: none.** No lock file (`%s`) lies beside the plan, so nothing shows when this plan was fixed; `ordplan freeze` writes one before the data are seen.", st.LockFile)
+		d.p("**Registered plan: none.** No lock file (%s) lies beside the plan, so nothing shows when this plan was fixed; `ordplan freeze` writes one before the data are seen.", mdCode(st.LockFile))
 		if len(st.Unused) > 0 {
 			d.p("The plan lists %d deviation(s), but without a lock there is no registered plan to compare with.", len(st.Unused))
 		}

@@ -21,8 +21,8 @@ func writeSimulated(d *doc, r *runner.Result) {
 	if model == "" {
 		model = "cumulative " + s.Link
 	}
-	d.p("**%s.** No real observation was used: `ordplan %s` drew %d rows (seed %d, `%s`) from the plan's `assumptions` and data dictionary, with a %s model generating each outcome, and ran the whole plan on them. This report shows what the registered analysis will print; its numbers say nothing about the real data.",
-		SimulatedMark, s.Command, s.N, s.Seed, s.File, model)
+	d.p("**%s.** No real observation was used: `ordplan %s` drew %d rows (seed %d, %s) from the plan's `assumptions` and data dictionary, with a %s model generating each outcome, and ran the whole plan on them. This report shows what the registered analysis will print; its numbers say nothing about the real data.",
+		SimulatedMark, s.Command, s.N, s.Seed, mdCode(s.File), model)
 	if s.Kept != nil {
 		d.p("The plan's subset (%s) kept %d of the %d simulated rows. The stated category proportions describe the rows the subset keeps, the population the plan analyses: the cutpoints were solved, and the design's constants set, on simulated rows that meet the subset.", strings.Join(s.Subset, "; "), *s.Kept, s.N)
 	}
