@@ -357,12 +357,15 @@ func (r Reading) keyOf(err error) string {
 	return ""
 }
 
-// Partitioned checks that the analysis can be fitted over partitions held
-// by workers: sums over partitions give the observed information of
-// frequency-weighted rows, and the design must need no constant of the
-// whole data.
-func (a *Analysis) Partitioned() error {
+// Partitioned checks that the analysis can fit model m over partitions
+// held by workers: sums over partitions give the observed information of
+// frequency-weighted rows, the design must need no constant of the whole
+// data, and the model no search from several starts (fit.OverParts).
+func (a *Analysis) Partitioned(m fit.Model) error {
 	r := a.Outcomes[0]
+	if err := fit.OverParts(m); err != nil {
+		return err
+	}
 	switch {
 	case a.Errors.Sampling || r.Options.Cluster != "":
 		return errors.New("a fit over parts held by workers takes frequency weights only and no clusters: sampling weights and clusters need sandwich errors, which need every row's score in one place")

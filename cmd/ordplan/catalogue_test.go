@@ -241,7 +241,7 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		"book.xlsx":    toWorkbook(t, []byte(strings.ReplaceAll(csv, "safety", "y"))),
 		"parts/p1.csv": []byte(csv), "parts/p2.csv": []byte(csv), "otherpart.csv": []byte("y,a,z\n1,0.5,1\n"),
 		"emptypart.csv": []byte(strings.SplitAfter(csv, "\n")[0]),
-		"new.csv":       []byte("a,b\n0.5,1\n-1,0\n"), "short.key": []byte("short\n"), "precious.txt": []byte("keep me\n"),
+		"new.csv":       []byte("a,b\n0.5,1\n-1,0\n"), "short.key": []byte("short\n"), "queue.key": []byte("a shared secret of the catalogue's queue\n"), "precious.txt": []byte("keep me\n"),
 	}
 	os.MkdirAll(filepath.Join(dir, "parts"), 0o755)
 	for name, b := range files {
@@ -685,7 +685,10 @@ func catalogue(dir string) (items []badInput) {
 			setup: inDataFolder,
 			want:  []string{`ordplan: --parts: the part "parts/p2.csv" comes twice from the list (a pattern and a name, or two patterns, both give it); every part is read once`}},
 		{id: "X13", name: "data.parts: a part with a header and no rows", args: []string{"run"}, plan: edit("file: d.csv", "parts: [parts/p1.csv, emptypart.csv]"), code: 1,
-			want: []string{`emptypart.csv: no data rows after the header; every part needs rows (leave an empty part out of data.parts)`}},
+			want: []string{`emptypart.csv: no data rows after the header; every part needs rows (leave an empty part out of data.parts or --parts)`}},
+		{id: "X13", name: "ordplan fit --parts --queue: a part with a header and no rows (found before connecting)", args: []string{"fit", "--outcome", "y", "--predictors", "a", "--parts", "parts/p1.csv,emptypart.csv", "--queue", "nats://127.0.0.1:1", "--queue-secret-file", "queue.key"}, code: 1,
+			setup: inDataFolder,
+			want:  []string{`ordplan: emptypart.csv: no data rows after the header; every part needs rows (leave an empty part out of data.parts or --parts)`}},
 		{id: "X14", name: "data.parts with data.file, or with data.imputed", args: []string{"check"}, plan: edit("file: d.csv", "file: d.csv\n  parts: [parts/p1.csv]"), code: 1,
 			want: []string{`X14.yaml:3:3: data: give either file (one data file) or parts (the data as several files with the same columns), not both`}},
 		{id: "D17", name: "lines ending in CR alone", args: fitArgs(d("cr.csv"), "--predictors", "a,b"), code: 1,
@@ -1026,6 +1029,10 @@ func catalogue(dir string) (items []badInput) {
 				_, e, code := runCLI("fit", "--parts", filepath.Join(dir, "w.csv")+","+filepath.Join(dir, "d.csv"), "--outcome", "y", "--predictors", "a,b", "--covariance", "expected", "--queue", "nats://127.0.0.1:1")
 				if code != 2 || !strings.Contains(e, "ordplan fit: --queue: a fit over parts held by workers gives observed-information standard errors only, not expected;") {
 					t.Errorf("--covariance expected: exit %d: %s", code, e)
+				}
+				_, e, code = runCLI("fit", "--parts", filepath.Join(dir, "w.csv")+","+filepath.Join(dir, "d.csv"), "--outcome", "y", "--predictors", "a,b", "--approach", "adjacent", "--stereotype", "--queue", "nats://127.0.0.1:1")
+				if code != 2 || !strings.Contains(e, "ordplan fit: --queue: constrained and stereotype models are not summed over parts: their search from several starts needs the rows in one place; without --queue, --parts reads the parts here as one data set and fits them with every option") {
+					t.Errorf("--stereotype: exit %d: %s", code, e)
 				}
 			}},
 		{id: "Q9", name: "ordplan fit with --data and --parts", args: fitArgs(d("d.csv"), "--predictors", "a", "--parts", "p1.csv,p2.csv"), code: 2,

@@ -20,13 +20,13 @@ func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, std
 	if err != nil {
 		return fail(stderr, err)
 	}
-	if err := a.Partitioned(); err != nil {
-		fmt.Fprintf(stderr, "ordplan fit: --queue: %v; without --queue, --parts reads the parts here as one data set and fits them with every option\n", err)
-		return exitUsage
-	}
 	m, err := s.Model()
 	if err != nil {
 		return fail(stderr, err)
+	}
+	if err := a.Partitioned(m); err != nil {
+		fmt.Fprintf(stderr, "ordplan fit: --queue: %v; without --queue, --parts reads the parts here as one data set and fits them with every option\n", err)
+		return exitUsage
 	}
 	cfg, err := qf.config("ordplan fit")
 	if err != nil {

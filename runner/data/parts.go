@@ -232,7 +232,7 @@ func (p *partRecords) Read() ([]string, error) {
 			return rec, &partError{p.cur.csvErr(err, rec)}
 		}
 		if p.spans[len(p.spans)-1].Last == 1 {
-			return nil, &partError{&Error{File: p.paths[p.next-1], Msg: "no data rows after the header; every part needs rows (leave an empty part out of data.parts)"}}
+			return nil, &partError{&Error{File: p.paths[p.next-1], Msg: emptyPart}}
 		}
 		if p.next == len(p.paths) {
 			return nil, io.EOF
@@ -270,6 +270,10 @@ func (p *partRecords) local(err error) error {
 	}
 	return &e
 }
+
+// emptyPart is the error of a part with a header and no rows, read with
+// the others (LoadFiles) or alone (Options.Part: a queue's parts).
+const emptyPart = "no data rows after the header; every part needs rows (leave an empty part out of data.parts or --parts)"
 
 // PartsSummary gathers what the parts of data read part by part
 // (Options.Part) keep, so that the checks a reading of the whole data

@@ -380,6 +380,9 @@ func (r *reader) keepValues(t *rowTally, d *Dataset, row *cells, line int) {
 func (r *reader) countDrops(t *rowTally, d *Dataset) error {
 	opt := &r.opt
 	if d.RowsRead == 0 {
+		if opt.Part {
+			return r.fail(0, "", emptyPart)
+		}
 		return r.fail(0, "", "no data rows after the header")
 	}
 	d.N = len(d.Y)

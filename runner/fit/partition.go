@@ -1,6 +1,7 @@
 package fit
 
 import (
+	"errors"
 	"fmt"
 	"math"
 )
@@ -215,8 +216,8 @@ func FitFromSums(w Whole, m Model, sums func(theta []float64, order int) (*Sums,
 	if err != nil {
 		return nil, &InputError{Msg: err.Error()}
 	}
-	if len(constrainedPredictors(m)) > 0 {
-		return nil, inputErr("partitioned fits of constrained models are not available (their multi-start search needs the rows): fit %s locally", m.Name())
+	if err := OverParts(m); err != nil {
+		return nil, inputErr("%s: %v", m.Name(), err)
 	}
 	if opt.Covariance == Expected {
 		return nil, inputErr("partitioned fits give observed-information errors only (covariance %q): the expected information needs the rows", Observed)
@@ -278,6 +279,14 @@ func FitFromSums(w Whole, m Model, sums func(theta []float64, order int) (*Sums,
 		c.restore(r)
 	}
 	return r, err
+}
+
+// OverParts says why FitFromSums cannot fit model m (nil: it can).
+func OverParts(m Model) error {
+	if len(constrainedPredictors(m)) > 0 {
+		return errors.New("constrained and stereotype models are not summed over parts: their search from several starts needs the rows in one place")
+	}
+	return nil
 }
 
 func (d *Data) categoriesOr(l []string) []string {

@@ -34,11 +34,14 @@ func (co *Coordinator) AddParts(paths []string) (string, error) {
 // it can): it sums plain columns over the parts, under model-based
 // observed-information errors, without constrained (or stereotype) terms.
 func notPartitioned(j runner.Job) string {
+	if m, err := j.Spec.Model(); err == nil {
+		if err := fit.OverParts(m); err != nil {
+			return err.Error()
+		}
+	}
 	switch {
 	case j.Design != nil:
 		return "its terms (categorical columns, transformations, interactions) take constants from all rows"
-	case len(j.Spec.Groups) > 0:
-		return "constrained and stereotype models are not summed over parts"
 	case j.FitOptions.Covariance != fit.Observed:
 		return "partitioned fits give observed-information errors only"
 	}
