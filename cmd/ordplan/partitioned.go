@@ -42,6 +42,9 @@ func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, std
 		return fail(stderr, err)
 	}
 	defer done()
+	// What the queue does that the user should see (jobs published again
+	// for want of a reply, replies discarded) goes to stderr.
+	c.Log = stderr
 	popt := queue.PartitionOptions{Data: dopt}
 	res, err := queue.FitPartitioned(ctx, c, refs, whole, m, popt)
 	if err != nil {

@@ -130,9 +130,9 @@ func (c *Client) runBatch(ctx context.Context, id string, tasks []*Task, h batch
 			if silent >= 2 {
 				return nil, b.st, fmt.Errorf("no reply to %d of %d jobs (the first: %s) within %s, nor within %s after they were published again: "+
 					"are workers running (ordplan worker) on this server with the same secret? (--job-deadline sets the wait)",
-					len(missing), len(tasks), tasks[missing[0]].ID, deadline, deadline)
+					len(missing), len(tasks), tasks[missing[0]].label(), deadline, deadline)
 			}
-			c.logf("queue: no reply to %d of %d jobs (the first: %s) within %s: published again", len(missing), len(tasks), tasks[missing[0]].ID, deadline)
+			c.logf("queue: no reply to %d of %d jobs (the first: %s) within %s: published again", len(missing), len(tasks), tasks[missing[0]].label(), deadline)
 			for _, i := range missing {
 				if err := b.publish(i); err != nil {
 					return nil, b.st, err
@@ -180,7 +180,7 @@ func (b *batch) take(e jetstream.KeyValueEntry, republish bool) (bool, error) {
 	}
 	if b.replies[i] != nil {
 		b.c.logf("queue: job %s: ignored a later reply stored under %s (revision %d): the first valid reply (revision %d) wins",
-			b.tasks[i].ID, shortKey(e.Key()), e.Revision(), b.revs[i])
+			b.tasks[i].label(), shortKey(e.Key()), e.Revision(), b.revs[i])
 		return false, nil
 	}
 	r, err := b.c.openReply(b.ctx, e.Key(), e.Value())
@@ -194,7 +194,7 @@ func (b *batch) take(e jetstream.KeyValueEntry, republish bool) (bool, error) {
 		// gone now. Stored before this batch started, it is purged (with
 		// its earlier revisions, unless something was stored after it)
 		// and the task published again.
-		b.c.logf("queue: job %s: the error stored under %s by an earlier run (worker %s: %.200s) is not reused: computed again", b.tasks[i].ID, shortKey(e.Key()), r.Worker, r.Err)
+		b.c.logf("queue: job %s: the error stored under %s by an earlier run (worker %s: %.200s) is not reused: computed again", b.tasks[i].label(), shortKey(e.Key()), r.Worker, r.Err)
 		if derr := b.c.results.Purge(b.ctx, e.Key(), jetstream.LastRevision(e.Revision())); derr != nil && !errors.Is(derr, jetstream.ErrKeyExists) {
 			b.c.logf("queue: deleting the stored error %s: %v", shortKey(e.Key()), derr)
 		}
@@ -210,7 +210,7 @@ func (b *batch) take(e jetstream.KeyValueEntry, republish bool) (bool, error) {
 	}
 	b.bad[i]++
 	b.st.Discarded++
-	b.c.logf("queue: job %s: discarded the reply stored under %s (revision %d): %v", b.tasks[i].ID, shortKey(e.Key()), e.Revision(), err)
+	b.c.logf("queue: job %s: discarded the reply stored under %s (revision %d): %v", b.tasks[i].label(), shortKey(e.Key()), e.Revision(), err)
 	// Purged only if nothing was stored after it (a later entry is judged
 	// on its own when the watch delivers it).
 	if derr := b.c.results.Purge(b.ctx, e.Key(), jetstream.LastRevision(e.Revision())); derr != nil && !errors.Is(derr, jetstream.ErrKeyExists) {
@@ -219,7 +219,7 @@ func (b *batch) take(e jetstream.KeyValueEntry, republish bool) (bool, error) {
 	if b.bad[i] >= MaxBadReplies {
 		return false, fmt.Errorf("job %s: %d replies discarded as unauthenticated or malformed (the last: %v); "+
 			"another process that can write to the server may be rewriting results, or a worker uses another secret",
-			b.tasks[i].ID, b.bad[i], err)
+			b.tasks[i].label(), b.bad[i], err)
 	}
 	if republish {
 		if err := b.publish(i); err != nil {
@@ -228,6 +228,14 @@ func (b *batch) take(e jetstream.KeyValueEntry, republish bool) (bool, error) {
 		b.st.Republished++
 	}
 	return false, nil
+}
+
+// label names a task in messages: its fit, or its part's file and hash.
+func (t *Task) label() string {
+	if t.Part != nil && t.Part.Name != "" {
+		return fmt.Sprintf("part %s (sha256 %.12s)", t.Part.Name, t.ID)
+	}
+	return t.ID
 }
 
 // publish seals task i and publishes it on its subject.
