@@ -1,9 +1,11 @@
 package runner
 
 import (
-	"ordplan/runner/data"
-	"ordplan/runner/fit"
 	"slices"
+
+	"ordplan/runner/data"
+	"ordplan/runner/design"
+	"ordplan/runner/fit"
 )
 
 // PartitionedChecks gives the checks of a fit summed over the partition
@@ -71,4 +73,25 @@ func PartitionedChecks(s SingleFit, res *fit.Result, parts []string, whole fit.W
 		PatternSplit: &PatternSplitRecord{Predictors: []string{}, NotComputed: noCategorical},
 		Readings:     plainReadings(res.Predictors, binary),
 	}, nil
+}
+
+// PartsRank is the rank check of a fit over parts held by workers, from
+// the whole data's moments (fit.CheckMoments, which FitFromSums also
+// makes), its failure said in the words of the flags as for the rows read
+// in one place (the terms of a plain-column design), before any part is
+// sent to a worker.
+func (a *Analysis) PartsRank(whole fit.Whole) error {
+	if whole.Moments == nil {
+		return nil
+	}
+	err := fit.CheckMoments(whole.Predictors, whole.Moments)
+	if err == nil {
+		return nil
+	}
+	r := a.Outcomes[0]
+	dz, derr := design.Build(r.Design, nil, 0, nil, nil)
+	if derr != nil || !slices.Equal(dz.Columns, whole.Predictors) {
+		dz = nil
+	}
+	return a.designError(r, dz, err, "")
 }

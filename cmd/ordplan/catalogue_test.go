@@ -766,9 +766,11 @@ func catalogue(dir string) (items []badInput) {
 				}
 			}},
 		{id: "M1", name: "constant predictor", args: fitArgs(d("d.csv"), "--predictors", "a,c"), code: 1,
-			want: []string{`predictor "c" is constant (every row has 5): it cannot be estimated alongside the cutpoints; remove it`}},
+			want:  []string{`predictor "c" is constant (every row has 5): it cannot be estimated alongside the cutpoints; remove it`},
+			check: overQueueParts("a,c", `ordplan: parts dpart1.csv, dpart2.csv: predictor "c" is constant (every row has 5): it cannot be estimated alongside the cutpoints; remove it`)},
 		{id: "M2", name: "perfectly collinear predictors", args: fitArgs(d("d.csv"), "--predictors", "a,b,d"), code: 1,
-			want: []string{`d.csv: --predictors item 3: term "d" is collinear with terms "a", "b" and the constant, so their effects cannot be told apart; remove one of the terms`}},
+			want:  []string{`d.csv: --predictors item 3: term "d" is collinear with terms "a", "b" and the constant, so their effects cannot be told apart; remove one of the terms`},
+			check: overQueueParts("a,b,d", `ordplan: parts dpart1.csv, dpart2.csv: --predictors item 3: term "d" is collinear with terms "a", "b" and the constant, so their effects cannot be told apart; remove one of the terms`)},
 		{id: "M16", name: "collinear terms in a plan", args: []string{"check"}, plan: edit("[a, b]", "[a, b, d]"), code: 1,
 			want: []string{`M16.yaml:6:20: predictors[2]: term "d" is collinear with terms "a" (`, `M16.yaml:6:14), "b" (`, `M16.yaml:6:17) and the constant, so their effects cannot be told apart; remove one of the terms (data d.csv, outcome "y")`}},
 		{id: "M17", name: "a categorical term whose levels merge another's", args: fitArgs(d("levels.csv"), "--predictors", "a,site|levels=n/e/s/w,region|levels=ne/sw"), code: 1,
@@ -1046,6 +1048,32 @@ func catalogue(dir string) (items []badInput) {
 	items = append(items, termItems(dir)...)
 	items = append(items, commandLineItems(dir)...)
 	return items
+}
+
+// overQueueParts checks that ordplan fit --parts --queue, the data d.csv
+// split into two parts, refuses the predictors preds with the message
+// want before connecting to the queue (there is none at its address):
+// the rank check over parts (runner.Analysis.PartsRank) says what the
+// fit of the whole file says; it reported no finite maximum.
+func overQueueParts(preds, want string) func(t *testing.T, dir, out, errs string) {
+	return func(t *testing.T, dir, out, errs string) {
+		t.Helper()
+		b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+		if err != nil {
+			t.Fatal(err)
+		}
+		lines := strings.SplitAfter(strings.TrimRight(string(b), "\n")+"\n", "\n")
+		half := len(lines) / 2
+		t.Chdir(dir)
+		p1, p2 := "dpart1.csv", "dpart2.csv"
+		if os.WriteFile(p1, []byte(strings.Join(lines[:half], "")), 0o644) != nil || os.WriteFile(p2, []byte(lines[0]+strings.Join(lines[half:], "")), 0o644) != nil {
+			t.Fatal("writing the parts")
+		}
+		_, e, code := runCLI("fit", "--parts", p1+","+p2, "--outcome", "y", "--predictors", preds, "--queue", "nats://127.0.0.1:1", "--queue-secret-file", "queue.key")
+		if code != 1 || strings.TrimSpace(e) != want {
+			t.Errorf("over parts held by queue workers: exit %d:\n%s\nwant exit 1:\n%s", code, e, want)
+		}
+	}
 }
 
 // withUsersFile adds to the item a file of the user's, written into the

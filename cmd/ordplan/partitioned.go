@@ -37,6 +37,9 @@ func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, std
 	if err != nil {
 		return fail(stderr, err)
 	}
+	if err := a.PartsRank(whole); err != nil {
+		return fail(stderr, err)
+	}
 	ctx, c, done, err := connectQueue(cfg, *qf.deadline)
 	if err != nil {
 		return fail(stderr, err)

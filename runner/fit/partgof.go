@@ -110,9 +110,10 @@ func (m *Moments) Merge(o *Moments) {
 	m.Weight = tot
 }
 
-// momentsOf is the moments of d's columns (its indicators included), in
-// the two passes of the rank check.
-func momentsOf(d *Data) *Moments {
+// MomentsOf is the moments of d's predictor columns (its indicators
+// included), in the two passes of the rank check: a part's share of
+// Whole.Moments.
+func MomentsOf(d *Data) *Moments {
 	K := len(d.Predictors)
 	if d.N() == 0 {
 		// A part that keeps no row: the identity of Merge.
@@ -221,7 +222,7 @@ func (q *ScoreQuery) Answer(d *Data) (*ScoreAnswer, error) {
 	case StepTable:
 		a.Table = tableOf(d, score, probs, q.Cuts)
 	case StepMoments:
-		a.Moments = momentsOf(indicatorData(d, groupsOf(score, q.Cuts), len(q.Cuts)+1))
+		a.Moments = MomentsOf(indicatorData(d, groupsOf(score, q.Cuts), len(q.Cuts)+1))
 	}
 	return a, nil
 }
@@ -469,6 +470,7 @@ func LipsitzOverParts(r *Result, w Whole, parts ScoreParts, groups int, opt Opti
 	}
 	aw := w
 	aw.Predictors = append(slices.Clone(w.Predictors), indicatorNames(G)...)
+	aw.Moments = nil // the refit's rank check is made below, from mo
 	mq := base
 	mq.Step = StepMoments
 	if answers, err = parts.Ask(&mq); err != nil {

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 )
 
 // Sums are the additive pieces of a log-likelihood over a set of rows. The
@@ -92,6 +93,12 @@ type Whole struct {
 	// predictors less Shift (Data.Centred) at parameters in those centred
 	// coordinates, and gives the result in the data's units.
 	Shift []float64
+	// Moments are the predictors' weighted means and centred
+	// cross-products over all partitions (nil: not known). With them
+	// FitFromSums refuses a constant predictor, or one collinear with
+	// others, as the rank check of a fit of the rows in one place does
+	// (CheckMoments), instead of reporting no finite maximum.
+	Moments *Moments
 	// Notes are remarks on the whole data the user must see (a value of a
 	// subset condition no row holds).
 	Notes []string
@@ -219,6 +226,11 @@ func FitFromSums(w Whole, m Model, sums func(theta []float64, order int) (*Sums,
 	if err := OverParts(m); err != nil {
 		return nil, inputErr("%s: %v", m.Name(), err)
 	}
+	if w.Moments != nil {
+		if err := CheckMoments(w.Predictors, w.Moments); err != nil {
+			return nil, err
+		}
+	}
 	if opt.Covariance == Expected {
 		return nil, inputErr("partitioned fits give observed-information errors only (covariance %q): the expected information needs the rows", Observed)
 	}
@@ -279,6 +291,33 @@ func FitFromSums(w Whole, m Model, sums func(theta []float64, order int) (*Sums,
 		c.restore(r)
 	}
 	return r, err
+}
+
+// CheckMoments is the rank check of a fit of the rows m summarizes (their
+// predictors named names): an InputError for a constant predictor or one
+// collinear with those before it and the constant, in the words of the
+// rank check of a fit of the rows in one place.
+func CheckMoments(names []string, m *Moments) error {
+	K := len(names)
+	if len(m.Mean) != K || len(m.Cross) != K*K {
+		return inputErr("the moments of %d columns for %d predictors", len(m.Mean), K)
+	}
+	if K == 0 || m.Weight <= 0 {
+		return nil
+	}
+	_, err := rankVerdict(names, m.Mean, m.Weight, m.Cross)
+	return err
+}
+
+// Spread is the spread of the predictors m summarizes (the diagonal of
+// the cross-products).
+func (m *Moments) Spread() *Spread {
+	K := len(m.Mean)
+	s := &Spread{Weight: m.Weight, Mean: slices.Clone(m.Mean), SS: make([]float64, K)}
+	for k := range s.SS {
+		s.SS[k] = m.Cross[k*K+k]
+	}
+	return s
 }
 
 // OverParts says why FitFromSums cannot fit model m (nil: it can).

@@ -31,7 +31,7 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 		return whole, nil, nil, fmt.Errorf("a partitioned fit needs at least two outcome categories; one is given (%s)", dopt.Categories[0])
 	}
 	whole.Predictors = dopt.Predictors
-	whole.Spread = &fit.Spread{}
+	whole.Moments = &fit.Moments{}
 	counts := map[int64]float64{} // coded: weight per code
 	if !coded {
 		whole.Counts = make([]float64, max(len(dopt.Categories), len(dopt.Codes)))
@@ -66,7 +66,7 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 			}
 		}
 		whole.Rows += ds.N
-		whole.Spread.Merge(fit.SpreadOf(runner.FitData(ds)))
+		whole.Moments.Merge(fit.MomentsOf(runner.FitData(ds)))
 		h, err := HashFile(p)
 		if err != nil {
 			return whole, nil, nil, err
@@ -95,6 +95,11 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 		}
 	}
 	whole.J = len(whole.Categories)
+	if whole.Moments.Weight == 0 {
+		K := len(whole.Predictors)
+		whole.Moments = &fit.Moments{Mean: make([]float64, K), Cross: make([]float64, K*K)}
+	}
+	whole.Spread = whole.Moments.Spread()
 	// Predictors far from zero for their spread are fitted centred, as
 	// in a fit of the rows in one place (judged on the whole data).
 	whole.Shift = whole.Spread.Shift()
