@@ -254,6 +254,9 @@ func (src *source) certify(r *Result, ly *layout, st newtonState, info []float64
 			return true, v
 		}
 	}
+	if v := flatDirection(src.loglik, ly, st.theta, st.ll, info, src.sd); v != nil {
+		return true, v
+	}
 	return false, minVec
 }
 
@@ -476,6 +479,68 @@ func risingDirection(loglik evalFunc, theta []float64, ll float64, minVec, info 
 				return v
 			}
 			break
+		}
+	}
+	return nil
+}
+
+// flatDirection looks for quasi-complete separation whose estimates stay
+// moderate where the search stops (a level that separates a category, its
+// slope near -14, its standard error 3e4) and that the scaled information
+// hides (its condition can be small): when some parameter's standard error
+// moves the linear predictor by more than 1000 (a slope's times its
+// predictor's SD, a cutpoint's as it is), the direction in which that
+// parameter is least determined (its column of the covariance: the
+// others following it along the ridge) is stepped by 5 and 20 units of
+// the linear predictor (in the parameter that moves it most), both ways.
+// A finite maximum falls along it by at least the curvature such an error
+// leaves, 0.5 * 5^2 / 1e6 at the first step, far beyond the 1e-9
+// allowed; a separation does not fall. It returns the direction (scaled
+// coordinates) or nil.
+func flatDirection(loglik evalFunc, ly *layout, theta []float64, ll float64, info, sd []float64) []float64 {
+	P := len(theta)
+	if len(ly.params) != P {
+		return nil
+	}
+	cov, err := invertSym(info, P)
+	if err != nil {
+		return nil
+	}
+	unit := make([]float64, P) // the linear predictor's change per unit of the parameter
+	worst, widest := -1, 1e3
+	for i, pa := range ly.params {
+		switch pa.kind {
+		case pCut:
+			unit[i] = 1
+		case pParallel, pFree, pGamma:
+			unit[i] = sd[pa.k]
+		}
+		if v := cov[i*P+i]; unit[i] > 0 && v > 0 && math.Sqrt(v)*unit[i] > widest {
+			worst, widest = i, math.Sqrt(v)*unit[i]
+		}
+	}
+	if worst < 0 {
+		return nil
+	}
+	d := make([]float64, P)
+	most := 0.0
+	for j := range d {
+		d[j] = cov[j*P+worst]
+		most = math.Max(most, math.Abs(d[j])*unit[j])
+	}
+	if !(most > 0) || math.IsInf(most, 0) {
+		return nil
+	}
+	for _, units := range []float64{5, 20} {
+		for _, sign := range []float64{1, -1} {
+			a := loglik(addScaled(theta, d, sign*units/most), 0)
+			if !a.bad && a.ll >= ll-1e-9*math.Max(1, math.Abs(ll)) {
+				v := make([]float64, P)
+				for j := range v {
+					v[j] = d[j] * math.Sqrt(math.Max(info[j*P+j], 0))
+				}
+				return v
+			}
 		}
 	}
 	return nil

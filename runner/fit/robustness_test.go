@@ -379,6 +379,38 @@ func TestCompleteSeparationEveryLink(t *testing.T) {
 	}
 }
 
+// Quasi-complete separation that the scaled information hides: 11 rows (a
+// seeded invented study) where category 1 is exactly the rows of level w
+// (checked here), so the adjacent model gains by sending tau[1] and g.w to
+// minus infinity, g.w faster. The probit fit stopped with g.w near -14 and
+// tau[1] near -6, standard errors 3e4 and 2e4, a scaled condition of 38
+// and no estimate large enough to be suspected, and was reported
+// converged (and chosen).
+func TestSeparationWithModerateEstimates(t *testing.T) {
+	rows := [][5]float64{ // y, x, b, g.v, g.w
+		{5, -0.52, 1, 0, 0}, {1, -1.32, 0, 0, 1}, {5, 2.31, 1, 0, 0}, {1, 0.21, 0, 0, 1}, {5, 0.13, 1, 0, 0}, {1, -1.01, 1, 0, 1},
+		{5, 1.63, 0, 0, 0}, {4, 0.24, 1, 0, 0}, {4, -0.47, 0, 1, 0}, {2, 0.33, 0, 0, 0}, {3, 0.05, 0, 0, 0},
+	}
+	d := &Data{J: 5, Predictors: []string{"x", "b", "g.v", "g.w"}}
+	for _, r := range rows {
+		if (r[0] == 1) != (r[4] == 1) {
+			t.Fatalf("row %v: category 1 is not exactly level w", r)
+		}
+		d.Y = append(d.Y, int(r[0])-1)
+		d.X = append(d.X, r[1], r[2], r[3], r[4])
+	}
+	for _, l := range []Link{Logit, Probit} {
+		m := Model{Comparison: Adjacent, Link: l, Effects: []Effect{Parallel, Parallel, Parallel, Parallel}}
+		r, err := Fit(d, m, Options{Workers: 1})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if r.Status != StatusNoFiniteMaximum || r.Separation == nil {
+			t.Errorf("%s: status %s, log-likelihood %v, errors %v", m.Name(), r.Status, r.LogLik, r.StdErrors)
+		}
+	}
+}
+
 // A fit stopped by the iteration limit says so in its status and message
 // and carries no log-likelihood.
 func TestRobustnessIterationLimit(t *testing.T) {
