@@ -6,6 +6,8 @@ import (
 	"strings"
 
 	"gopkg.in/yaml.v3"
+
+	"ordplan/runner/fit"
 )
 
 // Inference is the optional `inference` section: what to report beyond the
@@ -76,7 +78,15 @@ func (d *decoder) decodeInference(n *yaml.Node, inf *Inference, dir string) {
 		items, ok := d.list(v, m.at("hypotheses"))
 		if ok {
 			for i, it := range items {
-				if s, ok := d.text(it, itemPath(m.at("hypotheses"), i)); ok {
+				path := itemPath(m.at("hypotheses"), i)
+				if s, ok := d.text(it, path); ok {
+					// What no model's parameters can mend (syntax,
+					// numbers beyond the largest) is refused here;
+					// whether the names are parameters depends on the
+					// model, and is judged in each.
+					if err := fit.CheckHypothesisText(s); err != nil {
+						d.errorf(deref(it), path, "%v", err)
+					}
 					inf.Hypotheses = append(inf.Hypotheses, Hypothesis{Text: s, Line: deref(it).Line})
 				}
 			}

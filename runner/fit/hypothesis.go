@@ -28,11 +28,41 @@ type Hypothesis struct {
 // over the parameter names of a fit. Terms are an optional number (with an
 // optional '*') times a parameter name, or a number alone.
 func ParseHypothesis(text string, names []string) (*Hypothesis, error) {
-	h := &Hypothesis{Text: text}
 	index := map[string]int{}
 	for i, n := range names {
 		index[n] = i
 	}
+	return parseHypothesis(text, len(names), func(name string) (int, error) {
+		k, ok := index[name]
+		if !ok {
+			return 0, fmt.Errorf("%q is not a parameter of this model (parameters: %s)", name, strings.Join(names, ", "))
+		}
+		return k, nil
+	}, func(k int) string { return names[k] })
+}
+
+// CheckHypothesisText reads a hypothesis as ParseHypothesis does, taking
+// every name in it for a parameter: the errors it returns are those that
+// no model's parameters can mend (the syntax, numbers or coefficients that
+// add up beyond the largest number, a restriction of no parameter), known
+// from the plan alone.
+func CheckHypothesisText(text string) error {
+	var names []string
+	_, err := parseHypothesis(text, -1, func(name string) (int, error) {
+		if k := slices.Index(names, name); k >= 0 {
+			return k, nil
+		}
+		names = append(names, name)
+		return len(names) - 1, nil
+	}, func(k int) string { return names[k] })
+	return err
+}
+
+// parseHypothesis reads text with the parameter index of each name from
+// resolve, over P parameters (P < 0: as many as resolve has given, rows
+// then padded to that number).
+func parseHypothesis(text string, P int, resolve func(string) (int, error), name func(int) string) (*Hypothesis, error) {
+	h := &Hypothesis{Text: text}
 	for _, part := range strings.Split(text, ";") {
 		part = strings.TrimSpace(part)
 		if part == "" {
@@ -45,18 +75,22 @@ func ParseHypothesis(text string, names []string) (*Hypothesis, error) {
 		var exprs [][]float64
 		var consts []float64
 		for _, side := range sides {
-			row, c, err := parseLinear(side, index, len(names))
+			row, c, err := parseLinear(side, resolve, name)
 			if err != nil {
 				return nil, fmt.Errorf("hypothesis %q: %v", text, err)
 			}
 			exprs = append(exprs, row)
 			consts = append(consts, c)
 		}
+		n := P
+		for _, e := range exprs {
+			n = max(n, len(e))
+		}
 		for i := 0; i+1 < len(exprs); i++ {
-			row := make([]float64, len(names))
+			row := make([]float64, n)
 			nonzero := false
 			for j := range row {
-				row[j] = exprs[i][j] - exprs[i+1][j]
+				row[j] = at(exprs[i], j) - at(exprs[i+1], j)
 				nonzero = nonzero || row[j] != 0
 			}
 			if !nonzero {
@@ -67,7 +101,7 @@ func ParseHypothesis(text string, names []string) (*Hypothesis, error) {
 			// has no Wald test.
 			c := consts[i+1] - consts[i]
 			if math.IsInf(c, 0) || slices.ContainsFunc(row, func(v float64) bool { return math.IsInf(v, 0) }) {
-				return nil, fmt.Errorf("hypothesis %q: in %q the numbers of the two sides differ by more than the largest number", text, part)
+				return nil, fmt.Errorf("hypothesis %q: in %q the numbers of the two sides differ by more than the largest number (about 1.8e308)", text, part)
 			}
 			h.R = append(h.R, row)
 			h.C = append(h.C, c)
@@ -76,13 +110,28 @@ func ParseHypothesis(text string, names []string) (*Hypothesis, error) {
 	if len(h.R) == 0 {
 		return nil, fmt.Errorf("hypothesis %q is empty", text)
 	}
+	if P < 0 { // rows of one length
+		n := len(h.R[len(h.R)-1])
+		for i, row := range h.R {
+			h.R[i] = append(row, make([]float64, n-len(row))...)
+		}
+	}
 	return h, nil
 }
 
-// parseLinear reads "a*name + b - name2 + 3" into coefficients and a
-// constant.
-func parseLinear(s string, index map[string]int, P int) ([]float64, float64, error) {
-	row := make([]float64, P)
+// at is row[j], 0 beyond the row's end.
+func at(row []float64, j int) float64 {
+	if j < len(row) {
+		return row[j]
+	}
+	return 0
+}
+
+// parseLinear reads "a*name + b - name2 + 3" into coefficients (by the
+// index resolve gives each name; the row as long as the largest index
+// needs) and a constant.
+func parseLinear(s string, resolve func(string) (int, error), name func(int) string) ([]float64, float64, error) {
+	var row []float64
 	c := 0.0
 	s = strings.TrimSpace(s)
 	if s == "" {
@@ -140,10 +189,12 @@ func parseLinear(s string, index map[string]int, P int) ([]float64, float64, err
 			for j < len(s) && !unicode.IsSpace(rune(s[j])) && s[j] != '+' && s[j] != '-' && s[j] != '*' {
 				j++
 			}
-			name := s[i:j]
-			k, ok := index[name]
-			if !ok {
-				return nil, 0, fmt.Errorf("%q is not a parameter of this model (parameters: %s)", name, strings.Join(sortedNames(index), ", "))
+			k, err := resolve(s[i:j])
+			if err != nil {
+				return nil, 0, err
+			}
+			if k >= len(row) {
+				row = append(row, make([]float64, k+1-len(row))...)
 			}
 			row[k] += sign * coef
 			i = j
@@ -156,22 +207,14 @@ func parseLinear(s string, index map[string]int, P int) ([]float64, float64, err
 	// Numbers near the largest float64 can sum past it: a restriction
 	// with an infinite coefficient has no Wald test.
 	if math.IsInf(c, 0) {
-		return nil, 0, fmt.Errorf("%q: its numbers add up beyond the largest number", s)
+		return nil, 0, fmt.Errorf("%q: its numbers add up beyond the largest number (about 1.8e308)", s)
 	}
 	for k, v := range row {
 		if math.IsInf(v, 0) {
-			return nil, 0, fmt.Errorf("%q: the coefficients of %s add up beyond the largest number", s, sortedNames(index)[k])
+			return nil, 0, fmt.Errorf("%q: the coefficients of %s add up beyond the largest number (about 1.8e308)", s, name(k))
 		}
 	}
 	return row, c, nil
-}
-
-func sortedNames(index map[string]int) []string {
-	out := make([]string, len(index))
-	for n, i := range index {
-		out[i] = n
-	}
-	return out
 }
 
 // WaldLinear tests R theta = c in fit r with its covariance.

@@ -18,6 +18,11 @@ func FuzzHypothesis(f *testing.F) {
 	}
 	f.Fuzz(func(t *testing.T, s string) {
 		h, err := ParseHypothesis(s, names)
+		// What the plan check refuses (CheckHypothesisText, any names
+		// taken for parameters) no model can accept.
+		if cerr := CheckHypothesisText(s); cerr != nil && err == nil {
+			t.Fatalf("%q: refused by the plan check (%v), accepted by a model", s, cerr)
+		}
 		if err != nil {
 			if err.Error() == "" {
 				t.Fatal("empty error")
