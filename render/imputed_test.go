@@ -105,9 +105,11 @@ func TestImputedReport(t *testing.T) {
 	if !strings.HasPrefix(pred, "line,id,x1,x2,prob_c1,se_prob_c1,df_prob_c1,low_95_prob_c1,high_95_prob_c1,") || !strings.Contains(pred, ",expected,se_expected,df_expected,low_95_expected,high_95_expected,most_likely,") {
 		t.Errorf("predictions header: %s", pred)
 	}
-	// The interval of a pooled prediction: the estimate -/+ the t quantile
-	// on its Barnard-Rubin degrees of freedom times its standard error
-	// (Rubin 1987; the quantile from gonum's Student t, by hand here).
+	// The interval of a pooled probability: on its log-odds scale, the
+	// t quantile on its Barnard-Rubin degrees of freedom (Rubin 1987; the
+	// quantile from gonum's Student t) times its standard error over
+	// p(1 - p), transformed back (docs/models.md, "Predictions and
+	// marginal effects"; written out by hand here).
 	for _, line := range predLines[1:] {
 		cells := strings.Split(line, ",")
 		if len(cells) < 9 {
@@ -122,8 +124,10 @@ func TestImputedReport(t *testing.T) {
 		}
 		lo, _ := strconv.ParseFloat(cells[7], 64)
 		hi, _ := strconv.ParseFloat(cells[8], 64)
-		if math.Abs(lo-(v-q*se)) > 1e-9 || math.Abs(hi-(v+q*se)) > 1e-9 {
-			t.Errorf("pooled prediction interval [%g, %g], want %g -/+ %g * %g: %s", lo, hi, v, q, se, line)
+		eta, h := math.Log(v/(1-v)), q*se/(v*(1-v))
+		wlo, whi := 1/(1+math.Exp(-(eta-h))), 1/(1+math.Exp(-(eta+h)))
+		if math.Abs(lo-wlo) > 1e-9 || math.Abs(hi-whi) > 1e-9 {
+			t.Errorf("pooled prediction interval [%g, %g], want [%g, %g] (p %g, quantile %g, se %g): %s", lo, hi, wlo, whi, v, q, se, line)
 		}
 	}
 	me := strings.SplitN(string(files["table-marginal-effects-y.csv"]), "\n", 2)[0]

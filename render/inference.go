@@ -11,6 +11,7 @@ import (
 
 	"ordplan/render/numfmt"
 	"ordplan/runner"
+	"ordplan/runner/fit"
 	"ordplan/runner/impute"
 )
 
@@ -90,8 +91,8 @@ func writeNewRows(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			neg++
 		}
 	}
-	d.p("The chosen model's predictions for the %d rows of `%s` (%d rows read, %d skipped for a missing value) are in `%s`: for each row its line in the file and the file's own columns (so a row label travels with its predictions), the category probabilities (`prob_CATEGORY`), the cumulative probabilities P(y <= m) (`cumprob_CATEGORY`), the expected category (`expected`, categories scored 1 to %d), the most likely category and the linear predictors (`linear_m`), each number with its delta-method standard error (`se_...`) and its %s interval, the number plus and minus %s standard errors (`low_%s_...`, `high_%s_...`; for a probability near 0 or 1 such an interval can reach beyond it). Rows with a negative predicted probability: %d.",
-		nr.Rows.N, nr.File, nr.Rows.RowsRead, len(nr.Rows.Skipped), predictionsFile(or), len(or.Data.Categories), pct(level), times, lvText(level), lvText(level), neg)
+	d.p("The chosen model's predictions for the %d rows of `%s` (%d rows read, %d skipped for a missing value) are in `%s`: for each row its line in the file and the file's own columns (so a row label travels with its predictions), the category probabilities (`prob_CATEGORY`), the cumulative probabilities P(y <= m) (`cumprob_CATEGORY`), the expected category (`expected`, categories scored 1 to %d), the most likely category and the linear predictors (`linear_m`), each number with its delta-method standard error (`se_...`) and its %s interval (`low_%s_...`, `high_%s_...`). The interval of a linear predictor is the number plus and minus %s standard errors. That of a probability is made on its log-odds scale, logit(p) plus and minus the same multiple of the error se/(p(1 − p)), and transformed back, so that it stays between 0 and 1 and is not symmetric about p near either end (empty for a negative probability); that of the expected category likewise on the log-odds scale of its place between 1 and %d. Rows with a negative predicted probability: %d.",
+		nr.Rows.N, nr.File, nr.Rows.RowsRead, len(nr.Rows.Skipped), predictionsFile(or), len(or.Data.Categories), pct(level), lvText(level), lvText(level), times, len(or.Data.Categories), neg)
 	if nr.DF != nil {
 		d.p("On imputed data each number was predicted on each of the %d imputed sets by that set's fit and pooled by Rubin's rules: the prediction is the mean over the sets, its standard error the square root of the mean squared delta-method error plus (1 + 1/%d) times the variance between the sets, and each standard error is followed by its Barnard-Rubin degrees of freedom (`df_...`, empty when the sets agree) ; the intervals use t on them. The most likely category is that of the pooled probabilities; a row is flagged negative when a pooled probability or any set's is.",
 			or.Imputed.M, or.Imputed.M)
@@ -175,8 +176,17 @@ func predictionsCSV(r *runner.Result, or *runner.OutcomeResult) []byte {
 	}
 	head = append(head[:1], append(in, head[1:]...)...)
 	var b bytes.Buffer
-	f := func(x float64) string { return strconv.FormatFloat(x, 'g', 10, 64) }
-	num := func(v, se float64, dfs []float64, a int) {
+	f := func(x float64) string {
+		if math.IsNaN(x) {
+			return ""
+		}
+		return strconv.FormatFloat(x, 'g', 10, 64)
+	}
+	// num writes a number, its error, df and interval: for a number
+	// between lo and hi (probabilities, the expected category) made on the
+	// log-odds scale of its place in that range (fit.BoundedInterval), for
+	// a linear predictor (lo = hi) the number -/+ q errors.
+	num := func(v, se float64, dfs []float64, a int, lo, hi float64) {
 		b.WriteString("," + f(v) + "," + f(se))
 		q := z
 		if df != nil {
@@ -186,7 +196,11 @@ func predictionsCSV(r *runner.Result, or *runner.OutcomeResult) []byte {
 			}
 			q = impute.TQuantile(0.5+level/2, dfs[a])
 		}
-		b.WriteString("," + f(v-q*se) + "," + f(v+q*se))
+		l, h := v-q*se, v+q*se
+		if lo < hi {
+			l, h = fit.BoundedInterval(v, se, q, lo, hi)
+		}
+		b.WriteString("," + f(l) + "," + f(h))
 	}
 	var dProb, dCum, dExp, dLin []float64
 	if df != nil {
@@ -199,15 +213,15 @@ func predictionsCSV(r *runner.Result, or *runner.OutcomeResult) []byte {
 			b.WriteString("," + csvCell(c))
 		}
 		for j := 0; j < J; j++ {
-			num(pr.Prob[i*J+j], pr.SE[i*J+j], dProb, i*J+j)
+			num(pr.Prob[i*J+j], pr.SE[i*J+j], dProb, i*J+j, 0, 1)
 		}
 		for m := 0; m < q; m++ {
-			num(pr.Cum[i*q+m], pr.CumSE[i*q+m], dCum, i*q+m)
+			num(pr.Cum[i*q+m], pr.CumSE[i*q+m], dCum, i*q+m, 0, 1)
 		}
-		num(pr.Expected[i], pr.ExpectedSE[i], dExp, i)
+		num(pr.Expected[i], pr.ExpectedSE[i], dExp, i, 1, float64(J))
 		b.WriteString("," + csvCell(lv[pr.MostLikely[i]]))
 		for m := 0; m < q; m++ {
-			num(pr.Linear[i*q+m], pr.LinearSE[i*q+m], dLin, i*q+m)
+			num(pr.Linear[i*q+m], pr.LinearSE[i*q+m], dLin, i*q+m, 0, 0)
 		}
 		fmt.Fprintf(&b, ",%t\n", pr.Negative[i])
 	}

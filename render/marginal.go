@@ -23,7 +23,7 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		switch set.Kind {
 		case "average":
 			d.h(3, "Average marginal effects")
-			d.p("How much the probability of each category changes with each predictor, averaged over the %d rows used%s with the other predictors as observed. For a 0/1 predictor (change \"0 to 1\") the effect is the difference between the probabilities with the predictor set to 1 and set to 0; for any other predictor (change \"per unit\") it is the derivative, the change per unit of the predictor. The effects of one predictor add up to zero over the categories. Standard errors by the delta method; intervals at %s.",
+			d.p("How much the probability of each category changes with each predictor, averaged over the %d rows used%s with the other predictors as observed. For a 0/1 predictor (change \"0 to 1\") the effect is the difference between the probabilities with the predictor set to 1 and set to 0; for any other predictor (change \"per unit\") it is the derivative, the change per unit of the predictor. The effects of one predictor add up to zero over the categories. Standard errors by the delta method; intervals at %s, symmetric about the effect (the effect plus and minus a quantile times its standard error, since an effect, a change of a probability, can be negative).",
 				or.FitData.N(), weightedNote(or), pct(level))
 			if categorical != "" {
 				d.p("%s", strings.TrimSpace(categorical))
@@ -34,10 +34,10 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			if or.Design != nil && slices.ContainsFunc(or.Design.Terms, func(t design.Term) bool { return t.Kind == design.KindCategorical }) {
 				at = "every numeric predictor at its mean and every categorical one at its reference level, not at its shares in the data"
 			}
-			d.p("The same effects at one point: %s (%s), a 0/1 predictor changed from 0 to 1 with the others at that point. Standard errors by the delta method; intervals at %s.%s", at, pointList(or, set.Point), pct(level), categorical)
+			d.p("The same effects at one point: %s (%s), a 0/1 predictor changed from 0 to 1 with the others at that point. Standard errors by the delta method; intervals at %s, symmetric about the effect (the effect plus and minus a quantile times its standard error, since an effect, a change of a probability, can be negative).%s", at, pointList(or, set.Point), pct(level), categorical)
 		case "profile":
 			d.h(3, "Marginal effects at the plan's profile")
-			d.p("The effects at the point %s (predictors the plan's profile does not set are at their means, categorical ones at their reference level; a 0/1 predictor is changed from 0 to 1, any other numeric predictor differentiated, at that point). Standard errors by the delta method; intervals at %s.%s", pointList(or, set.Point), pct(level), categorical)
+			d.p("The effects at the point %s (predictors the plan's profile does not set are at their means, categorical ones at their reference level; a 0/1 predictor is changed from 0 to 1, any other numeric predictor differentiated, at that point). Standard errors by the delta method; intervals at %s, symmetric about the effect (the effect plus and minus a quantile times its standard error, since an effect, a change of a probability, can be negative).%s", pointList(or, set.Point), pct(level), categorical)
 		}
 		if set.Error != "" {
 			d.p("Not computed: %s.", set.Error)

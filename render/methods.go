@@ -216,9 +216,9 @@ func writeMethods(d *doc, r *runner.Result) {
 			s = append(s, fmt.Sprintf("On the imputed data these goodness-of-fit tests were computed on each imputed set with that set's fit of the chosen model, and their chi-square statistics were combined by the D2 rule %s, an approximation that is less powerful than the pooled tests of estimates or likelihoods.", c.cite("d2")))
 		}
 		if p.Models.HasEffects(fit.ConstrainedEffects) || p.Models.HasEffects(fit.StereotypeEffects) {
-			s = append(s, fmt.Sprintf("Predicted probabilities and marginal effects have delta-method standard errors; the random starts of constrained fits used the seed %d.", p.Seed))
+			s = append(s, fmt.Sprintf("Predicted probabilities and marginal effects have delta-method standard errors (the intervals of probabilities made on their log-odds scale); the random starts of constrained fits used the seed %d.", p.Seed))
 		} else {
-			s = append(s, "Predicted probabilities and marginal effects have delta-method standard errors.")
+			s = append(s, "Predicted probabilities and marginal effects have delta-method standard errors (the intervals of probabilities made on their log-odds scale).")
 		}
 		d.p("%s", strings.Join(s, " "))
 	}

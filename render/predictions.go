@@ -11,6 +11,7 @@ import (
 
 	"ordplan/render/numfmt"
 	"ordplan/runner"
+	"ordplan/runner/fit"
 )
 
 // Points of the focus predictor in the table and in the chart.
@@ -133,7 +134,7 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 	if label != "" {
 		caption = fmt.Sprintf("Predicted probability of each category of %s under %s as %s varies, with %s, other predictors at their means", or.Outcome.Column, or.Chosen.ID, pf.focus, label)
 	}
-	band := pct(level) + " pointwise intervals (delta method)"
+	band := pct(level) + " pointwise intervals (delta method on the log-odds scale of each probability)"
 	if pf.binary {
 		caption += "; each bar is the whole distribution at one value, split by category, lightest the lowest category."
 	} else {
@@ -189,9 +190,11 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 		p := probs(j)
 		lo, width := make([]float64, len(xs)), make([]float64, len(xs))
 		for i := range xs {
-			se := pred.SE[i*pred.J+j]
-			lo[i] = math.Max(0, p[i]-z*se)
-			width[i] = math.Min(1, p[i]+z*se) - lo[i]
+			l, h := fit.ProbInterval(p[i], pred.SE[i*pred.J+j], z)
+			if math.IsNaN(l) { // a negative probability: no band there
+				l, h = p[i], p[i]
+			}
+			lo[i], width[i] = l, h-l
 		}
 		// The band: an invisible line at the lower bound with the width
 		// stacked on it and filled. All three series carry the category's

@@ -297,10 +297,11 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 			for i, x := range xs {
 				for j := 0; j < pred.J; j++ {
 					p, se := pred.Prob[i*pred.J+j], pred.SE[i*pred.J+j]
-					rows = append(rows, []string{pf.Label(x), or.Data.Categories[j], csvNum(p), csvNum(se), csvNum(p - z*se), csvNum(p + z*se)})
+					lo, hi := fit.ProbInterval(p, se, z)
+					rows = append(rows, []string{pf.Label(x), or.Data.Categories[j], csvNum(p), csvNum(se), csvNum(lo), csvNum(hi)})
 				}
 			}
-			add("predicted", fmt.Sprintf("predicted probabilities of the chosen model over %s (other predictors at their means) with delta-method %s%% intervals", pf.focus, lv),
+			add("predicted", fmt.Sprintf("predicted probabilities of the chosen model over %s (other predictors at their means) with delta-method standard errors and %s%% intervals made on the log-odds scale of the probability (inside 0 and 1; empty for a negative probability)", pf.focus, lv),
 				[]string{pf.focus, "category", "probability", "std_error", "low_" + lv, "high_" + lv}, rows)
 		}
 	}

@@ -390,3 +390,31 @@ func isBinary(d *Data, k int) bool {
 	}
 	return true
 }
+
+// ProbInterval is the interval of a probability p with delta-method
+// standard error se at quantile q (z, or t on its degrees of freedom):
+// BoundedInterval on (0, 1).
+func ProbInterval(p, se, q float64) (lo, hi float64) { return BoundedInterval(p, se, q, 0, 1) }
+
+// BoundedInterval is the interval of a quantity v that lies between a and
+// b (a probability: 0 and 1; the expected category: 1 and J), with
+// delta-method standard error se, at quantile q. It is made on the log-odds
+// scale of v's place u = (v-a)/(b-a) in the range, where the delta method
+// gives the error se/((b-a) u (1-u)): logit(u) -/+ q times that error,
+// transformed back. So it stays inside (a, b), and near an end it is not
+// symmetric about v. A v outside [a, b] (a negative probability, where a
+// model's cumulative probabilities cross) has no such interval (NaN, NaN);
+// at an end of the range, or with se 0, the interval is v itself.
+func BoundedInterval(v, se, q, a, b float64) (lo, hi float64) {
+	u := (v - a) / (b - a)
+	switch {
+	case math.IsNaN(u) || math.IsNaN(se) || u < 0 || u > 1:
+		return math.NaN(), math.NaN()
+	case u == 0 || u == 1 || se == 0:
+		return v, v
+	}
+	eta := math.Log(u) - math.Log1p(-u)
+	h := q * se / ((b - a) * u * (1 - u))
+	back := func(x float64) float64 { return a + (b-a)/(1+math.Exp(-x)) }
+	return back(eta - h), back(eta + h)
+}
