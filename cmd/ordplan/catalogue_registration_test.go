@@ -136,7 +136,7 @@ func registrationItems() []badInput {
 			want: []string{`assumptions.direction: the direction applies to the stage comparison only (assumptions.comparison is "cumulative")`}},
 		{id: "A14", name: "a subset that keeps almost none of the simulated rows", args: []string{"rehearse"}, code: 1,
 			plan: edit("predictors:", "subset:\n  - {column: a, at_least: 5}\npredictors:") + assumed("{a: 0.2}", ""),
-			want: []string{`A14.yaml: subset: the plan's subset (a >= 5) keeps 1 of the 2000000 rows drawn from the assumptions (under 5%): the stated proportions cannot be set on the rows it keeps`}},
+			want: []string{`A14.yaml: subset: the plan's subset (a >= 5) keeps 0 of the first 20000 rows drawn from the assumptions (0%, under 5%): the stated proportions cannot be set on the rows it keeps`}},
 		{id: "A15", name: "an effect for a level the subset leaves out", args: []string{"check", "--no-data"}, code: 1, lines: true,
 			plan: edit("predictors:", "subset:\n  - {column: b, none_of: [w]}\npredictors:") + "categorical:\n  b: {levels: [u, v, w], unobserved: drop}\n" +
 				strings.Replace(assumed("{b: {v: 0.3, w: 0.5}}", ""), "b: {mean: 0, sd: 1}", "b: {proportions: [0.3, 0.3, 0.4]}", 1),

@@ -27,6 +27,20 @@ const CalibrationRows = 100_000
 // refused (its simulated data sets would keep under 5% of their rows).
 const maxCalibrationDraws = 20 * CalibrationRows
 
+// probeDraws is the first draw from which a subset is refused early: one
+// whose kept count there is below 5% of it by more than four standard
+// deviations of a count (keptFarBelow) would be refused after
+// maxCalibrationDraws all the same, and is refused at once.
+const probeDraws = CalibrationRows / 5
+
+// keptFarBelow reports whether kept rows of drawn put the subset's share
+// of rows clearly under 1/20: even kept + 4 sqrt(kept) + 4, an upper bound
+// of a binomial count at about four standard deviations, is under drawn/20.
+func keptFarBelow(kept, drawn int) bool {
+	k := float64(kept)
+	return 20*(k+4*math.Sqrt(k)+4) < float64(drawn)
+}
+
 // Predictor is how one raw column is drawn.
 type Predictor struct {
 	Column      string
@@ -615,6 +629,7 @@ func (s *Sim) calibrationSample() ([]row, error) {
 	rows := make([]row, 0, CalibrationRows)
 	r := s.newRow()
 	drawn := 0
+	early := false
 	for len(rows) < CalibrationRows && drawn < maxCalibrationDraws {
 		s.drawRow(rng, &r)
 		drawn++
@@ -622,14 +637,22 @@ func (s *Sim) calibrationSample() ([]row, error) {
 			rows = append(rows, r)
 			r = s.newRow()
 		}
+		if drawn == probeDraws && keptFarBelow(len(rows), drawn) {
+			early = true
+			break
+		}
 	}
 	if len(rows) < CalibrationRows {
 		conds := make([]string, len(s.Keep))
 		for i, c := range s.Keep {
 			conds[i] = c.String()
 		}
-		return nil, fmt.Errorf("%s: subset: the plan's subset (%s) keeps %d of the %d rows drawn from the assumptions (under 5%%): the stated proportions cannot be set on the rows it keeps, and simulated data would have almost none; check the subset against the assumptions and the dictionary",
-			s.Plan.Path, strings.Join(conds, "; "), len(rows), drawn)
+		first := ""
+		if early {
+			first = "first "
+		}
+		return nil, fmt.Errorf("%s: subset: the plan's subset (%s) keeps %d of the %s%d rows drawn from the assumptions (%.2g%%, under 5%%): the stated proportions cannot be set on the rows it keeps, and simulated data would have almost none; check the subset against the assumptions and the dictionary",
+			s.Plan.Path, strings.Join(conds, "; "), len(rows), first, drawn, 100*float64(len(rows))/float64(drawn))
 	}
 	return rows, nil
 }

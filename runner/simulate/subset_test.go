@@ -206,3 +206,23 @@ func TestRowsOutsideSubsetWithoutValidModel(t *testing.T) {
 	}
 	t.Logf("%d of 2000 rows outside the subset left without a category", empty)
 }
+
+// A subset is refused after the first probeDraws rows only when the share it
+// keeps there is under 5% by a clear margin, so that the early answer is the
+// one the full draw (maxCalibrationDraws) would give: counts by hand, k + 4
+// sqrt(k) + 4 against drawn/20 = 1000 of 20000. A subset keeping 5% (1000)
+// or just under it (900: 900 + 120 + 4 = 1024) goes on drawing; one keeping
+// 4% (800: 800 + 113.1 + 4 = 917.1) or none is refused there.
+func TestSubsetRefusedEarlyOnlyWhenClear(t *testing.T) {
+	if probeDraws != 20000 || maxCalibrationDraws != 20*CalibrationRows {
+		t.Fatalf("probe %d, limit %d: the hand counts below are for 20000 and 20 x %d", probeDraws, maxCalibrationDraws, CalibrationRows)
+	}
+	for _, c := range []struct {
+		kept int
+		far  bool
+	}{{0, true}, {226, true}, {800, true}, {900, false}, {1000, false}, {5000, false}} {
+		if got := keptFarBelow(c.kept, probeDraws); got != c.far {
+			t.Errorf("%d kept of %d: refused early %v, want %v", c.kept, probeDraws, got, c.far)
+		}
+	}
+}
