@@ -230,8 +230,11 @@ func writeMethods(d *doc, r *runner.Result) {
 // registration, after the plan's hash: the lock it matches or departs
 // from, with the registration id, or that it was not frozen; "" when the
 // plan was not compared with a lock.
-func registeredAs(r *runner.Result) string {
-	st := r.Registration
+func registeredAs(r *runner.Result) string { return registeredText(r.Registration) }
+
+// registeredText is registeredAs of a plan compared with its lock (nil: not
+// compared), for a run's methods and a power study's opening.
+func registeredText(st *lock.Status) string {
 	if st == nil {
 		return ""
 	}

@@ -7,6 +7,7 @@ import (
 	"github.com/go-echarts/go-echarts/v2/charts"
 	"github.com/go-echarts/go-echarts/v2/opts"
 
+	"ordplan/plan/lock"
 	"ordplan/runner"
 	"ordplan/runner/simulate"
 )
@@ -22,8 +23,9 @@ const (
 )
 
 // PowerOutputs renders a power study: power.md, power.html (with the
-// chart of power against n) and power.json (PowerFiles).
-func PowerOutputs(pr *simulate.PowerResult) (map[string][]byte, error) {
+// chart of power against n) and power.json (PowerFiles); reg is the plan
+// compared with its lock (nil: not compared).
+func PowerOutputs(pr *simulate.PowerResult, reg *lock.Status) (map[string][]byte, error) {
 	js, err := runner.MarshalStable(pr)
 	if err != nil {
 		return nil, err
@@ -38,8 +40,8 @@ func PowerOutputs(pr *simulate.PowerResult) (map[string][]byte, error) {
 	for i, n := range pr.Sizes {
 		sizes[i] = fmt.Sprint(n)
 	}
-	d.p("**%s.** No real observation was used: `ordplan power` drew %d data sets at each sample size (%s) from the plan's `assumptions` and data dictionary (seed %d, %s model generating each outcome) and ran the plan's whole decision procedure on each: the grid of fits, the tests, the rules in order and the plan's hypotheses in the chosen model (Wald tests at alpha %g). Written by ordplan %s from the plan %s (sha256 `%s`).",
-		SimulatedMark, pr.Replicates, strings.Join(sizes, ", "), pr.Seed, pr.Generator, pr.Alpha, pr.Version, mdCode(pr.PlanFile), pr.PlanSHA256)
+	d.p("**%s.** No real observation was used: `ordplan power` drew %d data sets at each sample size (%s) from the plan's `assumptions` and data dictionary (seed %d, %s model generating each outcome) and ran the plan's whole decision procedure on each: the grid of fits, the tests, the rules in order and the plan's hypotheses in the chosen model (Wald tests at alpha %g). Written by ordplan %s from the plan %s (sha256 `%s`)%s.",
+		SimulatedMark, pr.Replicates, strings.Join(sizes, ", "), pr.Seed, pr.Generator, pr.Alpha, pr.Version, mdCode(pr.PlanFile), pr.PlanSHA256, registeredText(reg))
 	d.p("Every rate is a share of the %d replicates of a size, with its Monte Carlo standard error sqrt(p(1-p)/R) in brackets.", pr.Replicates)
 	for _, op := range pr.Outcomes {
 		d.h(2, "Outcome "+mdCode(op.Outcome))

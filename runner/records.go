@@ -9,6 +9,7 @@ import (
 	"runtime"
 
 	"ordplan/plan"
+	"ordplan/plan/lock"
 	"ordplan/runner/data"
 	"ordplan/runner/design"
 	"ordplan/runner/fit"
@@ -325,11 +326,14 @@ func RunJSON(r *Result, madeBy string, files map[string][]byte) ([]byte, error) 
 
 // SimulationRunJSON is run.json for `ordplan power`, which reads no data
 // file (every data set is drawn from the plan's assumptions): the program,
-// the plan, the seed, the command line and the SHA-256 of every output.
-func SimulationRunJSON(p *plan.Plan, command string, files map[string][]byte) ([]byte, error) {
+// the plan, its registration (the plan compared with its lock, as run
+// records it; nil: not compared), the seed, the command line and the
+// SHA-256 of every output.
+func SimulationRunJSON(p *plan.Plan, reg *lock.Status, command string, files map[string][]byte) ([]byte, error) {
 	rec := RunRecord{Program: "ordplan", Version: Version,
 		Plan: PlanRef{File: filepath.Base(p.Path), Title: p.Title, SHA256: p.Hash}, Seed: p.Seed,
-		GoVersion: runtime.Version(), Platform: runtime.GOOS + "/" + runtime.GOARCH, Command: command, MadeBy: "power"}
+		GoVersion: runtime.Version(), Platform: runtime.GOOS + "/" + runtime.GOARCH, Command: command, MadeBy: "power",
+		Registration: registrationRecord(reg)}
 	return rec.withOutputs(files)
 }
 

@@ -17,7 +17,7 @@ func TestRegisteredExampleBeforeData(t *testing.T) {
 	}
 	dir := t.TempDir()
 	out, errs, code := runCLI("rehearse", planPath, "--n", "250", "--out", filepath.Join(dir, "r"))
-	if code != 0 || !strings.HasPrefix(out, "SIMULATED DATA: 250 rows") {
+	if code != 0 || !strings.Contains(out, "\nSIMULATED DATA: 250 rows") || !strings.HasPrefix(out, "registered plan: none (no kneepain.lock.json") {
 		t.Fatalf("rehearse: %d %s %s", code, out, errs)
 	}
 	md, _ := os.ReadFile(filepath.Join(dir, "r", "report.md"))

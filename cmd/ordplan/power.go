@@ -14,7 +14,7 @@ import (
 	"ordplan/runner/simulate"
 )
 
-const powerUsage = "usage: ordplan power PLAN.yaml --n 200,400,800 [--replicates 500] [--alpha 0.05] [--out DIR] [--workers N] [--quiet]"
+const powerUsage = "usage: ordplan power PLAN.yaml --n 200,400,800 [--replicates 500] [--alpha 0.05] [--out DIR] [--workers N] [--quiet] [--allow-unregistered-changes]"
 
 // cmdPower sizes the study: the whole decision procedure on many data sets
 // simulated from the plan's assumptions at each sample size.
@@ -28,6 +28,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 	workers := fs.Int("workers", 0, "replicates run at once (default: all cores); results do not depend on it")
 	quiet := fs.Bool("quiet", false, "no progress lines")
 	qf := addQueueFlags(fs, "run each replicate's fits on ordplan worker processes through the JetStream server at this NATS URL", true)
+	allow := fs.Bool("allow-unregistered-changes", false, "simulate although the plan departs from its frozen form without a stated reason (run.json records it)")
 	planPath, stop, code := planArg(fs, args, powerUsage, stderr)
 	if stop {
 		return code
@@ -63,6 +64,10 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		return exitFail
 	}
 	warnUnedited(p, stderr)
+	reg, code := registration(p, *allow, stderr)
+	if code != exitOK {
+		return code
+	}
 	dir := *out
 	if dir == "" {
 		base := filepath.Base(planPath)
@@ -98,17 +103,18 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
-	files, err := render.PowerOutputs(pr)
+	files, err := render.PowerOutputs(pr, reg)
 	if err != nil {
 		return fail(stderr, err)
 	}
 	command := commandLine(append([]string{"ordplan", "power"}, resultArgs(fs, rawArgs, planPath)...))
 	err = writeOutputs(olock, dir, files, func(files map[string][]byte) ([]byte, error) {
-		return runner.SimulationRunJSON(p, command, files)
+		return runner.SimulationRunJSON(p, reg, command, files)
 	})
 	if err != nil {
 		return fail(stderr, err)
 	}
+	fmt.Fprintln(stdout, registrationLine(reg))
 	for _, op := range pr.Outcomes {
 		for _, s := range op.Sizes {
 			var parts []string

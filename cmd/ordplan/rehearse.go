@@ -14,7 +14,7 @@ import (
 	"ordplan/runner/simulate"
 )
 
-const rehearseUsage = "usage: ordplan rehearse PLAN.yaml [--n N] [--out DIR] [--workers N] [--quiet]"
+const rehearseUsage = "usage: ordplan rehearse PLAN.yaml [--n N] [--out DIR] [--workers N] [--quiet] [--allow-unregistered-changes]"
 
 // simulatedFile is the name of the simulated data among a rehearsal's outputs.
 const simulatedFile = "simulated-data.csv"
@@ -35,6 +35,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	out := fs.String("out", "", "output directory (default: out/<plan name>-rehearsal)")
 	workers := fs.Int("workers", 0, "fits run at once (default: all cores); results do not depend on it")
 	quiet := fs.Bool("quiet", false, "no progress lines")
+	allow := fs.Bool("allow-unregistered-changes", false, "rehearse although the plan departs from its frozen form without a stated reason (the report says so in its first lines)")
 	planPath, stop, code := planArg(fs, args, rehearseUsage, stderr)
 	if stop {
 		return code
@@ -45,6 +46,10 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 		return exitFail
 	}
 	warnUnedited(p, stderr)
+	reg, code := registration(p, *allow, stderr)
+	if code != exitOK {
+		return code
+	}
 	sim, err := simulate.New(p)
 	if err != nil {
 		return fail(stderr, err)
@@ -89,6 +94,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, fmt.Errorf("rehearsal on simulated data: %w", err))
 	}
+	res.Registration = reg
 	res.Simulated = &runner.Simulation{Command: "rehearse", N: rows, Seed: p.Seed, Link: sim.Link.String(), Model: sim.GeneratingModel(), File: simulatedFile, Truth: sim.Truth()}
 	if len(p.Subset) > 0 && len(res.Outcomes) > 0 && res.Outcomes[0].Data != nil {
 		kept := res.Outcomes[0].Data.RowsRead - res.Outcomes[0].Data.RowsOutside
@@ -106,6 +112,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	if err := writeRun(olock, res, "rehearse", dir, files); err != nil {
 		return fail(stderr, err)
 	}
+	fmt.Fprintln(stdout, registrationLine(reg))
 	fmt.Fprintf(stdout, "%s: %d rows simulated from the plan's assumptions\n", render.SimulatedMark, rows)
 	for _, o := range dec.Outcomes {
 		chosen := "no model chosen"
