@@ -1181,7 +1181,8 @@ func TestBadInputCatalogue(t *testing.T) {
 // run in the test process cannot exercise (an interrupt would stop the
 // tests), with the test that covers each; the item's row names it.
 var testedElsewhere = map[string]struct{ file, name string }{
-	"O8": {"outdir_test.go", "TestInterruptMessages"},
+	"O8":  {"outdir_test.go", "TestInterruptMessages"},
+	"Q11": {"../../runner/queue/hostile_test.go", "TestJobDeadlineNamesThePart"},
 }
 
 // Every item of the catalogue is in docs/bad-inputs.md, and every item

@@ -397,3 +397,27 @@ func TestCheckReply(t *testing.T) {
 		}
 	}
 }
+
+// Without workers a fit over parts fails the same way, its message and
+// the note of the jobs published again naming the first part waiting by
+// its file, not by its bare hash (invented rows).
+func TestJobDeadlineNamesThePart(t *testing.T) {
+	ctx := testContext(t, 30*time.Second)
+	url := localserver.ForTest(t)
+	c := connect(t, ctx, url)
+	c.JobDeadline = 300 * time.Millisecond
+	log := &LogBuffer{}
+	c.Log = log
+	dir := t.TempDir()
+	parts := []PartitionRef{writePart(t, dir, "north.csv", "y,x\n1,0\n2,1\n1,1\n"), writePart(t, dir, "south.csv", "y,x\n2,0\n2,1\n")}
+	whole := fit.Whole{J: 2, Predictors: []string{"x"}, Categories: []string{"1", "2"}, Counts: []float64{2, 3}, Rows: 5}
+	m, _ := runner.Spec{Approach: fit.Cumulative, Link: fit.Logit, Predictors: []string{"x"}}.Model()
+	_, err := FitPartitioned(ctx, c, parts, whole, m, PartitionOptions{Data: data.Options{Outcome: "y", Predictors: []string{"x"}}})
+	want := "no reply to 2 of 2 jobs (the first: part north.csv (sha256 " + parts[0].Hash[:12] + "))"
+	if err == nil || !strings.Contains(err.Error(), want) || !strings.Contains(err.Error(), "are workers running") {
+		t.Fatalf("got %v, want %q", err, want)
+	}
+	if !strings.Contains(log.String(), want+" within 300ms: published again") {
+		t.Errorf("the note of the jobs published again:\n%s", log.String())
+	}
+}
