@@ -8,7 +8,6 @@ import (
 	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/data"
-	"ordplan/runner/design"
 )
 
 // descriptive is the summary of one predictor (or one level of a
@@ -26,19 +25,16 @@ type descriptive struct {
 
 // describe summarizes every raw predictor column of ds by outcome
 // category, weighted by the frequency weights, or by sampling weights
-// (sampling) rescaled to sum to the rows (design.RowScaled), so that the
+// as read, rescaled to sum to the rows (data.Options.Sampling), so that the
 // numbers do not depend on the sampling weights' scale. levels gives the levels of
 // a categorical column (its cells hold the level index), nil for a
 // numeric one. A row whose outcome is missing (-1, the original data of an
 // imputed run) is left out, and so is a missing predictor value (NaN) from
 // that predictor's summary: each predictor over the rows where it and the
 // outcome are observed.
-func describe(ds *data.Dataset, levels [][]string, sampling bool) []descriptive {
+func describe(ds *data.Dataset, levels [][]string) []descriptive {
 	K, J := ds.K, len(ds.Categories)
 	weights := ds.Weights
-	if sampling {
-		weights = design.RowScaled(weights)
-	}
 	var out []descriptive
 	one := func(label string, k int, counts bool, value func(i int) float64) {
 		s := descriptive{Label: label, Counts: counts, N: make([]float64, J+1), Mean: make([]float64, J+1),
@@ -115,7 +111,7 @@ func sourceLevels(or *runner.OutcomeResult) [][]string {
 // writeDescriptives writes the predictors by outcome category and the
 // missing-value pattern of the used columns.
 func writeDescriptives(d *doc, or *runner.OutcomeResult, sampling bool) {
-	ds := describe(describedData(or), sourceLevels(or), sampling)
+	ds := describe(describedData(or), sourceLevels(or))
 	if len(ds) > 0 {
 		lv := or.Data.Categories
 		weighted := ""
@@ -252,7 +248,7 @@ func writeMissing(d *doc, or *runner.OutcomeResult) {
 // under sampling weights only Wald tests are tests, pooled by D1.
 func pooledTestsText(sampling bool) string {
 	if sampling {
-		return "Wald tests (of parallel lines and of the plan's hypotheses) are pooled by D1 (Li, Raghunathan and Rubin 1991), an F test on k and v degrees of freedom, shown in the test tables as k F with its F p-value; with sampling weights the fits maximize a pseudo-likelihood, so the likelihood-ratio, score, Brant and Wolfe-Gould tests and the goodness-of-fit tests are not computed, so none of them is pooled. The plan's test rules use the pooled Wald tests."
+		return "Under sampling weights " + runner.SamplingPoolingText() + ". D1 (Li, Raghunathan and Rubin 1991) is an F test on k and v degrees of freedom, shown in the test tables as k F with its F p-value. The plan's test rules use the pooled Wald tests."
 	}
 	return "Likelihood-ratio tests are pooled by the D3 statistic (Meng and Rubin 1992), Wald tests (of parallel lines and of the plan's hypotheses) by D1 (Li, Raghunathan and Rubin 1991); both are F tests on k and v degrees of freedom, shown in the test tables as k F with their F p-values. The Brant test is pooled by D1 too, from the binary logits' stacked slopes and their joint covariance in each set; score and Wolfe-Gould tests, known only by their chi-square statistics, and the goodness-of-fit tests of the chosen model (Lipsitz, Pulkstenis-Robinson; each set's rows grouped by that set's own fit), by D2 (Li, Meng, Raghunathan and Rubin 1991), which is less powerful and only approximately calibrated. The plan's test rules use these pooled tests."
 }

@@ -83,7 +83,7 @@ func writeMethods(d *doc, r *runner.Result) {
 		sampling := r.Analysis.Errors.Sampling
 		fitted := "fitted by maximum likelihood"
 		if sampling {
-			fitted = fmt.Sprintf("fitted by maximum pseudo-likelihood with the sampling weights of %s", mdCode(p.Data.Weights))
+			fitted = fmt.Sprintf("fitted by maximum pseudo-likelihood with the sampling weights of %s, rescaled to sum to the rows used (so that no number depends on their arbitrary scale)", mdCode(p.Data.Weights))
 		}
 		s = append(s, fmt.Sprintf("The outcome %s (%d ordered categories, from %s to %s) was analysed with ordinal regression models %s (ordplan %s).",
 			mdText(or.Outcome.Label), len(ds.Categories), mdText(ds.Categories[0]), mdText(ds.Categories[len(ds.Categories)-1]), fitted, r.Version))

@@ -42,13 +42,10 @@ func writeData(d *doc, or *runner.OutcomeResult, sampling bool) {
 	ds := or.AsRead()
 	d.h(3, "Data")
 	obs := fmt.Sprintf("Observations (sum of weights): %s.", numfmt.Count(ds.NObs()))
-	// rowScale puts sampling-weighted counts on the scale of the rows (the
-	// weights rescaled to sum to the rows, as in design.RowScaled): the
-	// weights' own scale means nothing.
-	rowScale := 1.0
 	if sampling && ds.Weights != nil {
-		rowScale = float64(ds.N) / ds.NObs()
-		obs = fmt.Sprintf("The sampling weights sum to %s; the counts below are weighted, with the weights rescaled to sum to the %d rows used.", numfmt.Num(ds.NObs()), ds.N)
+		// Read rescaled (data.Options.Sampling): the weights' own scale
+		// means nothing, so no number here depends on it.
+		obs = fmt.Sprintf("The sampling weights were rescaled to sum to the %d rows used (their scale carries no information); the counts below are weighted by them.", ds.N)
 	}
 	d.p("Outcome column %s, %d categories in this order: %s. %d rows read, %d used; %s. %s",
 		mdCode(or.Outcome.Column), len(ds.Categories), mdText(strings.Join(ds.Categories, " < ")), ds.RowsRead, ds.N, ds.DropSummary(), obs)
@@ -57,14 +54,10 @@ func writeData(d *doc, or *runner.OutcomeResult, sampling bool) {
 		// On imputed data: the observed values of the original file, not
 		// one imputed set's.
 		total, missing := 0.0, 0.0
-		obScale := 1.0
-		if sampling && ob.Weights != nil {
-			obScale = float64(ob.N) / ob.NObs()
-		}
 		for i, y := range ob.Y {
 			w := 1.0
 			if ob.Weights != nil {
-				w = ob.Weights[i] * obScale
+				w = ob.Weights[i]
 			}
 			if y < 0 {
 				missing += w
@@ -77,9 +70,9 @@ func writeData(d *doc, or *runner.OutcomeResult, sampling bool) {
 		for j, l := range ob.Categories {
 			share := "0.0%"
 			if total > 0 {
-				share = numfmt.Fixed(100*ob.Counts[j]*obScale/total, 1) + "%"
+				share = numfmt.Fixed(100*ob.Counts[j]/total, 1) + "%"
 			}
-			rows = append(rows, []string{l, numfmt.Num(ob.Counts[j] * obScale), share})
+			rows = append(rows, []string{l, numfmt.Num(ob.Counts[j]), share})
 		}
 		if missing > 0 {
 			rows = append(rows, []string{"(missing, imputed)", numfmt.Num(missing), ""})
@@ -87,7 +80,7 @@ func writeData(d *doc, or *runner.OutcomeResult, sampling bool) {
 		d.captioned("Outcome categories, observed values of the original data").table([]string{"Category", "Count", "Share"}, rows)
 	} else {
 		for j, l := range ds.Categories {
-			rows = append(rows, []string{l, numfmt.Num(ds.Counts[j] * rowScale), numfmt.Fixed(100*ds.Counts[j]/ds.NObs(), 1) + "%"})
+			rows = append(rows, []string{l, numfmt.Num(ds.Counts[j]), numfmt.Fixed(100*ds.Counts[j]/ds.NObs(), 1) + "%"})
 		}
 		d.captioned("Outcome categories").table([]string{"Category", "Count", "Share"}, rows)
 	}

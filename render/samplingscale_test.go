@@ -1,7 +1,11 @@
 package render
 
 import (
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
 	"fmt"
+	"maps"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -10,6 +14,8 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"ordplan/internal/rscript"
 )
 
 // samplingScaleData writes 150 seeded rows (y in 1..3 from a logistic
@@ -45,7 +51,9 @@ func btoi(b bool) int {
 
 // TestSamplingWeightsHaveNoScale: the same plan under sampling weights w
 // and w/sum(w) gives the same estimates, standard errors, design constants
-// (centring, SD scaling, quantile knots) and descriptive tables. The
+// (centring, SD scaling, quantile knots), descriptive tables,
+// log-likelihoods and criteria (the weights are read rescaled to sum to
+// the rows), and calibration table. The
 // expected values come from outside the code under test: the run with the
 // unnormalized weights, and, with constant weights 1/n, the ordinary
 // sample SD and the quantiles by linear interpolation between order
@@ -77,7 +85,7 @@ report: {timestamp: false}
 		sum += wi
 	}
 	norm, _, _ := run(1 / sum)
-	for _, f := range []string{"table-estimates-y.csv", "table-descriptives-y.csv", "table-odds-ratios-y.csv"} {
+	for _, f := range []string{"table-estimates-y.csv", "table-descriptives-y.csv", "table-odds-ratios-y.csv", "table-models-y.csv", "table-calibration-y.csv"} {
 		if string(base[f]) != string(norm[f]) {
 			t.Errorf("%s differs between weights w and w/sum(w):\n%s\nvs\n%s", f, base[f], norm[f])
 		}
@@ -156,5 +164,191 @@ report: {timestamp: false}
 	hasAll(t, "report.md", md, "Not shown: the columns of zl, zp.", "neither has a term whose data column also makes another term")
 	if strings.Contains(md, "per unit of log(z)") {
 		t.Errorf("report.md reads zl per unit of log(z), which cannot change with zp held fixed")
+	}
+}
+
+// exactWeightsData writes 150 seeded rows as samplingScaleData does, with
+// sampling weights k/4 (k whole, 1 to 8, summing to 512) times factor,
+// and a two-category outcome y2 (y above 1), to path: with factor 1,
+// 1/128 (weights summing to 1) and 1000 every weight, product and sum of
+// the rescaling is exact, so the weights read are the same bits.
+func exactWeightsData(t *testing.T, path string, factor float64) (y2 []int, x, z, k []float64) {
+	t.Helper()
+	rng := rand.New(rand.NewPCG(20261203, 10))
+	ks := make([]int, 150)
+	sum := 0
+	for i := range ks {
+		ks[i] = 2 + rng.IntN(4)
+		sum += ks[i]
+	}
+	for i := 0; sum != 512; i = (i + 1) % len(ks) {
+		switch {
+		case sum < 512 && ks[i] < 8:
+			ks[i]++
+			sum++
+		case sum > 512 && ks[i] > 1:
+			ks[i]--
+			sum--
+		}
+	}
+	var b strings.Builder
+	b.WriteString("y,y2,x,z,site,w\n")
+	for i := 0; i < 150; i++ {
+		xi := math.Round(1000*(5+2*rng.NormFloat64())) / 1000
+		zi := math.Round(1000*(1+9*rng.Float64())) / 1000
+		u := rng.Float64()
+		s := 0.4*xi - 0.2*zi + math.Log(u/(1-u))
+		y := 1 + btoi(s > 0) + btoi(s > 1.5)
+		fmt.Fprintf(&b, "%d,%d,%g,%g,%s,%s\n", y, btoi(y > 1), xi, zi, []string{"a", "b", "c"}[i%3],
+			strconv.FormatFloat(float64(ks[i])/4*factor, 'g', -1, 64))
+		y2, x, z, k = append(y2, btoi(y > 1)), append(x, xi), append(z, zi), append(k, float64(ks[i]))
+	}
+	if err := os.WriteFile(path, []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return y2, x, z, k
+}
+
+// withoutData is a run's outputs with what names the data file taken
+// out: its SHA-256 in the texts, and decisions.json's data record.
+func withoutData(t *testing.T, files map[string][]byte, dataPath string) map[string]string {
+	t.Helper()
+	raw, err := os.ReadFile(dataPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	h := sha256.Sum256(raw)
+	hash := hex.EncodeToString(h[:])
+	out := map[string]string{}
+	for name, b := range files {
+		if name == "decisions.json" {
+			var d map[string]any
+			if err := json.Unmarshal(b, &d); err != nil {
+				t.Fatal(err)
+			}
+			delete(d, "data")
+			b, _ = json.MarshalIndent(d, "", "  ")
+		}
+		out[name] = strings.ReplaceAll(string(b), hash, "DATA-SHA256")
+	}
+	return out
+}
+
+// TestSamplingWeightsSameBytes: sampling weights w, w/sum(w) and 1000 w
+// (weights chosen so that the rescaling is exact) give the same report,
+// tables and decisions.json byte for byte, but for the data file's hash;
+// so do the w-weighted data held as two parts (data.parts), read as one
+// data set. Before, the log-likelihoods, AIC, BIC, the calibration table
+// and the observations scaled with the weights.
+func TestSamplingWeightsSameBytes(t *testing.T) {
+	const plan = `version: 1
+data: {%s, weights: w, weight_kind: sampling}
+outcomes: [{column: y, categories: ["1", "2", "3"]}]
+categorical:
+  site: {levels: [a, b, c]}
+predictors:
+  - {name: xs, column: x, centre: mean, scale: sd}
+  - {name: zs, column: z, spline: {quantiles: [0.1, 0.5, 0.9]}}
+  - site
+models: {approaches: [cumulative, stage], effects: [parallel, nonparallel]}
+tests: {parallel_lines: [wald]}
+rules:
+  - reject_if_sparse: {per_parameter: 5, smallest_category: 10}
+  - choose: {by: tic}
+report: {timestamp: false}
+`
+	run := func(factor float64) map[string]string {
+		dir := t.TempDir()
+		path := filepath.Join(dir, "d.csv")
+		exactWeightsData(t, path, factor)
+		return withoutData(t, renderSource(t, dir, fmt.Sprintf(plan, "file: d.csv"), 1), path)
+	}
+	base := run(1)
+	for _, c := range []struct {
+		name   string
+		factor float64
+	}{{"w/sum(w)", 1.0 / 128}, {"1000 w", 1000}} {
+		other := run(c.factor)
+		for _, name := range slices.Sorted(maps.Keys(base)) {
+			if name == "run.json" {
+				continue
+			}
+			if base[name] != other[name] {
+				t.Errorf("%s differs between weights w and %s", name, c.name)
+			}
+		}
+	}
+	if !strings.Contains(base["report.md"], "The sampling weights were rescaled to sum to the 150 rows used") {
+		t.Errorf("report.md does not say the weights were rescaled to the rows")
+	}
+
+	// The same rows as two parts, read as one data set.
+	dir := t.TempDir()
+	whole := filepath.Join(dir, "d.csv")
+	exactWeightsData(t, whole, 1)
+	src, _ := os.ReadFile(whole)
+	lines := strings.SplitAfter(strings.TrimSpace(string(src)), "\n")
+	os.WriteFile(filepath.Join(dir, "a.csv"), []byte(strings.Join(lines[:70], "")), 0o644)
+	os.WriteFile(filepath.Join(dir, "b.csv"), []byte(lines[0]+strings.Join(lines[70:], "")+"\n"), 0o644)
+	parts := renderSource(t, dir, fmt.Sprintf(plan, "parts: [a.csv, b.csv]"), 1)
+	outcome := func(md string) string { return md[strings.Index(md, "## Outcome"):strings.Index(md, "## Methods")] }
+	if a, b := outcome(base["report.md"]), outcome(string(parts["report.md"])); a != b {
+		t.Errorf("the outcome's section differs between the data in one file and in two parts")
+	}
+	for name, b := range parts {
+		if strings.HasPrefix(name, "table-") && base[name] != string(b) {
+			t.Errorf("%s differs between the data in one file and in two parts", name)
+		}
+	}
+}
+
+// TestSamplingLogLikAgainstR: with sampling weights the log-likelihood
+// reported is that of the weights rescaled to sum to the rows, the same
+// for w and 1000 w: checked against R's glm (binomial, logit) fitted with
+// the weights rescaled to sum to n, its log-likelihood sum_i w_i log p_i
+// computed from glm's fitted probabilities (glm's own logLik rounds
+// non-integer binomial weights).
+func TestSamplingLogLikAgainstR(t *testing.T) {
+	rscript.Require(t)
+	const plan = `version: 1
+data: {file: d.csv, weights: w, weight_kind: sampling}
+outcomes: [{column: y2, categories: ["0", "1"]}]
+predictors: [x, z]
+models: {approaches: [cumulative], effects: [parallel]}
+rules:
+  - choose: {by: tic}
+report: {timestamp: false}
+`
+	loglik := func(factor float64) (float64, float64) {
+		dir := t.TempDir()
+		exactWeightsData(t, filepath.Join(dir, "d.csv"), factor)
+		var d struct {
+			Outcomes []struct {
+				Fits []struct {
+					LogLik float64 `json:"loglik"`
+					NObs   float64 `json:"nobs"`
+				} `json:"fits"`
+			} `json:"outcomes"`
+		}
+		if err := json.Unmarshal(renderSource(t, dir, plan, 1)["decisions.json"], &d); err != nil {
+			t.Fatal(err)
+		}
+		f := d.Outcomes[0].Fits[0]
+		return f.LogLik, f.NObs
+	}
+	dir := t.TempDir()
+	exactWeightsData(t, filepath.Join(dir, "d.csv"), 1000)
+	os.WriteFile(filepath.Join(dir, "ll.R"), []byte(`d <- read.csv("d.csv")
+wr <- d$w * nrow(d) / sum(d$w)
+g <- suppressWarnings(glm(y2 ~ x + z, family = binomial, data = d, weights = wr))
+p <- fitted(g)
+cat(sprintf("ll %.17g\n", sum(wr * ifelse(d$y2 == 1, log(p), log(1 - p)))))
+`), 0o644)
+	want := rscript.Run(t, dir, filepath.Join(dir, "ll.R")).Scalar(t, "ll")
+	for _, factor := range []float64{1, 1000} {
+		got, nobs := loglik(factor)
+		if math.Abs(got-want) > 1e-6 || nobs != 150 {
+			t.Errorf("weights times %g: log-likelihood %.10g on %g observations, R's glm with the weights rescaled to sum to 150: %.10g", factor, got, nobs, want)
+		}
 	}
 }

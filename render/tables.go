@@ -78,7 +78,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 
 	// Predictors by outcome category.
 	var rows [][]string
-	for _, s := range describe(describedData(or), sourceLevels(or), r.Analysis != nil && r.Analysis.Errors.Sampling) {
+	for _, s := range describe(describedData(or), sourceLevels(or)) {
 		for c := range s.N {
 			cat := "all"
 			if c < len(or.Data.Categories) {

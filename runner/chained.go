@@ -89,7 +89,7 @@ func chainedSets(a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Data
 	for s, set := range res.Sets {
 		sets[s] = completed(ds, set, len(spec.Sources))
 	}
-	dz, fds, err := designSets(spec, sets, a.Errors.Sampling)
+	dz, fds, err := designSets(spec, sets)
 	if err != nil {
 		return nil, nil, nil, fmt.Errorf("%s: %v (outcome %q)", a.Source, err, r.Outcome)
 	}

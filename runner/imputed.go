@@ -127,7 +127,7 @@ func imputedSets(a *Analysis, r Reading) (*ImputedRun, []*data.Dataset, *design.
 	}
 	run.Rows = sets[0].N
 	run.Data = sets
-	dz, fds, err := designSets(spec, sets, a.Errors.Sampling)
+	dz, fds, err := designSets(spec, sets)
 	if err != nil {
 		return nil, nil, nil, fmt.Errorf("%s: %v (outcome %q)", src, err, r.Outcome)
 	}
@@ -137,8 +137,8 @@ func imputedSets(a *Analysis, r Reading) (*ImputedRun, []*data.Dataset, *design.
 
 // designSets builds the design on the first imputed set, freezing its
 // constants (centring, knots), and the fit inputs of every set with it.
-func designSets(spec design.Spec, sets []*data.Dataset, sampling bool) (*design.Design, []*fit.Data, error) {
-	dz, d0, err := buildDesign(spec, sets[0], sampling)
+func designSets(spec design.Spec, sets []*data.Dataset) (*design.Design, []*fit.Data, error) {
+	dz, d0, err := buildDesign(spec, sets[0])
 	if err != nil {
 		return nil, nil, fmt.Errorf("%v (imputed set 1)", err)
 	}
@@ -638,7 +638,7 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 func imputedNotes(m int, sampling bool) []string {
 	if sampling {
 		return []string{fmt.Sprintf("Analysed on %d imputed data sets, pooled by Rubin's rules; log-likelihoods, AIC and BIC are means over the sets (descriptive only: under sampling weights the log-likelihood is a pseudo-likelihood); the plan's hypotheses are pooled Wald tests (D1); marginal effects and predictions are computed on each set and pooled by Rubin's rules", m),
-			"Overall fit on imputed data: under sampling weights the likelihood-ratio statistic against the thresholds-only model and the goodness-of-fit statistics of the chosen model (Lipsitz, Pulkstenis-Robinson) are not tests, so none is pooled; LL0 and the pseudo-R2 measures are means over the sets"}
+			"Tests on imputed data under sampling weights: " + SamplingPoolingText() + "; LL0 and the pseudo-R2 measures are means over the sets"}
 	}
 	return []string{fmt.Sprintf("Analysed on %d imputed data sets, pooled by Rubin's rules; log-likelihoods, AIC and BIC are means over the sets, and rules on AIC or BIC compare those means; the plan's hypotheses are pooled Wald tests (D1); marginal effects and predictions are computed on each set and pooled by Rubin's rules", m),
 		"Overall fit on imputed data: the likelihood-ratio test against the thresholds-only model is pooled by D3, and LL0 and the pseudo-R2 measures are means over the sets; the goodness-of-fit tests of the chosen model (Lipsitz, Pulkstenis-Robinson) are computed on each set and pooled by D2, which is approximate"}

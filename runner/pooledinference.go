@@ -27,10 +27,7 @@ type PredictionDF struct {
 // rows with sampling weights, which count no units (their scale is
 // arbitrary), as the minimum-information rule counts them.
 func completeObs(d *fit.Data, sampling bool) float64 {
-	if sampling {
-		return float64(d.N())
-	}
-	return d.NObs()
+	return fit.Observations(d.N(), d.NObs(), sampling)
 }
 
 // completeDF is the complete-data degrees of freedom of Rubin's rules:

@@ -124,7 +124,7 @@ func imputationRecord(or *OutcomeResult, sampling bool) *ImputationRecord {
 	}
 	method := "Rubin's rules with Barnard-Rubin degrees of freedom; likelihood-ratio tests pooled by D3, Wald tests by D1; log-likelihood, AIC and BIC are means over the sets"
 	if sampling {
-		method = "Rubin's rules with Barnard-Rubin degrees of freedom; Wald tests pooled by D1 (with sampling weights no likelihood-based statistic is a test, so none is pooled by D3 or D2); log-likelihood, AIC and BIC are means over the sets, descriptive only"
+		method = "Rubin's rules with Barnard-Rubin degrees of freedom; " + SamplingPoolingText() + "; log-likelihood, AIC and BIC are means over the sets, descriptive only"
 	}
 	rec := &ImputationRecord{Sets: im.M, Source: im.Source, Files: im.Files, Column: im.Column, Rows: im.Rows, Imputation: im.Chained,
 		Method: method, Pooling: []PoolingFit{}}
@@ -194,9 +194,11 @@ func BuildDecisions(r *Result) *Decisions {
 		Data:    dataRef(r),
 		NewRows: newRowsRef(r),
 		Notes:   nonNil(r.Notes), Registration: registrationRecord(r.Registration), Simulated: r.Simulated}
+	sampling := r.Analysis != nil && r.Analysis.Errors.Sampling
 	for _, or := range r.Outcomes {
+		read := or.AsRead()
 		od := OutcomeDecisions{Outcome: or.Outcome.Column, Categories: or.Data.Categories, Counts: or.Data.Counts,
-			RowsRead: or.AsRead().RowsRead, RowsUsed: or.AsRead().N, Dropped: nonNilDrops(or.AsRead().Dropped), NObs: or.AsRead().NObs(),
+			RowsRead: read.RowsRead, RowsUsed: read.N, Dropped: nonNilDrops(read.Dropped), NObs: fit.Observations(read.N, read.NObs(), sampling),
 			Choice: or.Choice, Fallback: or.Fallback, Notes: nonNil(or.Notes), Final: map[string]Verdict{}}
 		if or.Observed != nil {
 			od.Counts = or.Observed.Counts
@@ -231,7 +233,7 @@ func BuildDecisions(r *Result) *Decisions {
 			od.Chosen = &id
 		}
 		od.Overall = or.Overall
-		od.Imputation = imputationRecord(or, r.Analysis != nil && r.Analysis.Errors.Sampling)
+		od.Imputation = imputationRecord(or, sampling)
 		if od.Overall == nil {
 			od.Overall = []OverallRecord{}
 		}

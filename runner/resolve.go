@@ -95,7 +95,7 @@ const SamplingCriteriaNote = "The weights are sampling weights: the log-likeliho
 func (c CovariancePolicy) Notes() []string {
 	out := []string{fmt.Sprintf("Standard errors from the %s.", c.Covariance.Describe())}
 	if c.Sampling {
-		out = append(out, "The weights are sampling weights: the fits maximize a pseudo-likelihood, standard errors are sandwich estimates, likelihood-ratio, score and Brant tests are not valid (the plan's test rules use Wald tests, and its choice uses TIC), and AIC/BIC are descriptive only.")
+		out = append(out, "The weights are sampling weights, rescaled to sum to the rows used (their scale is arbitrary): the fits maximize a pseudo-likelihood, standard errors are sandwich estimates, AIC/BIC are descriptive only, and "+SamplingTestsText()+" (the plan's test rules use Wald tests, and its choice uses TIC).")
 	}
 	return out
 }
@@ -156,7 +156,7 @@ func ResolvePlan(p *plan.Plan) *Analysis {
 		spec := p.DesignSpec(oc)
 		dopt := data.Options{
 			Outcome: oc.Column, Categories: oc.Categories,
-			Weights: p.Data.Weights, Offset: p.Data.Offset, Cluster: p.Data.Cluster,
+			Weights: p.Data.Weights, Sampling: p.Data.Sampling(), Offset: p.Data.Offset, Cluster: p.Data.Cluster,
 			Refuse: p.Data.Missing == "refuse", MissingTokens: p.Data.MissingValues,
 			Keep: p.Subset, ColumnMissing: columnMissing(p), Dialect: p.Data.Dialect(),
 		}
@@ -224,7 +224,7 @@ func ResolveFit(s SingleFit) (*Analysis, error) {
 	}
 	spec := s.designSpec()
 	dopt := data.Options{Outcome: s.Outcome, Categories: s.Categories,
-		Weights: s.Weights, Offset: s.Offset, Cluster: s.Cluster, Refuse: s.Refuse, Dialect: s.Dialect}
+		Weights: s.Weights, Sampling: s.Sampling, Offset: s.Offset, Cluster: s.Cluster, Refuse: s.Refuse, Dialect: s.Dialect}
 	a := &Analysis{Source: s.DataName(), DataFile: s.DataName(), DataPath: s.DataFile,
 		DataPaths: s.Parts, DataFiles: s.Parts, Errors: covariancePolicy(s.Covariance, s.Sampling)}
 	a.Fit = a.Errors.fitOptions(s.Workers)
@@ -274,7 +274,7 @@ func (a *Analysis) Load(r Reading) (*Loaded, error) {
 	if err := a.Clusters(r, ds); err != nil {
 		return nil, err
 	}
-	dz, d, err := buildDesign(r.Design, ds, a.Errors.Sampling)
+	dz, d, err := buildDesign(r.Design, ds)
 	if err != nil {
 		if !a.Plan {
 			return nil, fmt.Errorf("%s: %v", a.DataFile, err)

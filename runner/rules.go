@@ -651,10 +651,11 @@ func (env *ruleEnv) judgeSparse(r plan.Rule, f *FitEntry) (bool, string) {
 	or := env.or
 	var parts []string
 	keep := true
-	nobs := or.Data.NObs()
+	sampling := env.an.Errors.Sampling
+	nobs := fit.Observations(or.Data.N, or.Data.NObs(), sampling)
 	unit := "observations"
-	if env.an.Errors.Sampling {
-		nobs, unit = float64(or.Data.N), "rows"
+	if sampling {
+		unit = "rows"
 	}
 	if r.PerParameter > 0 {
 		np := f.Result.NParams
@@ -682,11 +683,12 @@ func (env *ruleEnv) smallestCategory(r plan.Rule, f *FitEntry) (string, bool) {
 	or := env.or
 	ds := or.Data
 	levels := ds.Categories
+	counted := fit.CountWeights(ds.Weights, env.an.Errors.Sampling)
 	weight := func(i int) float64 {
-		if ds.Weights == nil || env.an.Errors.Sampling {
+		if counted == nil {
 			return 1
 		}
-		return ds.Weights[i]
+		return counted[i]
 	}
 	if r.Within == "" {
 		counts := make([]float64, len(levels))

@@ -38,7 +38,7 @@ func handOutcome(fits []handFit, y []int, x []float64) *OutcomeResult {
 		ds.Lines = append(ds.Lines, i+2)
 	}
 	spec := design.Spec{Sources: []design.Source{{Name: "x"}}, Terms: []design.TermSpec{{Name: "x", Source: "x"}}}
-	dz, fd, err := buildDesign(spec, ds, false)
+	dz, fd, err := buildDesign(spec, ds)
 	if err != nil {
 		panic(err)
 	}

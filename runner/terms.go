@@ -12,15 +12,11 @@ import (
 )
 
 // buildDesign builds the design of spec on a data set read with its
-// sources as predictors, and the fit input. Sampling weights enter the
-// design's sample constants rescaled (design.RowScaled), so that the
-// constants do not depend on the weights' scale.
-func buildDesign(spec design.Spec, ds *data.Dataset, sampling bool) (*design.Design, *fit.Data, error) {
-	w := ds.Weights
-	if sampling {
-		w = design.RowScaled(w)
-	}
-	dz, err := design.Build(spec, ds.X, ds.N, w, ds.Lines)
+// sources as predictors, and the fit input. Sampling weights were
+// rescaled as they were read (data.Options.Sampling), so the design's
+// sample constants do not depend on their scale.
+func buildDesign(spec design.Spec, ds *data.Dataset) (*design.Design, *fit.Data, error) {
+	dz, err := design.Build(spec, ds.X, ds.N, ds.Weights, ds.Lines)
 	if err != nil {
 		var de *design.Error
 		if errors.As(err, &de) && de.Line > 0 && ds.Parts != nil {

@@ -53,6 +53,15 @@ type Options struct {
 	// other parts hold, but kept in Dataset.ListSeen, to be judged once
 	// over all parts (CheckListValues), as for the data in one file.
 	Part bool `json:"-"`
+	// Sampling says the weights are sampling weights, whose scale is
+	// arbitrary: the reader rescales them to sum to the rows kept
+	// (sampling.go), so that nothing read from them depends on their
+	// scale. A part read alone (Part) is rescaled as the whole data are,
+	// by WholeWeights.
+	Sampling bool `json:"sampling,omitempty"`
+	// WholeWeights are the rows kept and the weights' sum of the whole
+	// data, for a part read alone under Sampling (PartsSummary.Weights).
+	WholeWeights *WeightTotal `json:"whole_weights,omitempty"`
 }
 
 // DefaultMissing are the missing-value tokens used when

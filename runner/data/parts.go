@@ -282,10 +282,13 @@ const emptyPart = "no data rows after the header; every part needs rows (leave a
 // row, or rows of one category, as a stretch of one file may.
 type PartsSummary struct {
 	d Dataset
+	w WeightTotal
 }
 
-// Add counts one part's rows, kept and dropped.
+// Add counts one part's rows, kept and dropped, and the weights as read
+// (a part read without Options.Sampling), after the parts before it.
 func (s *PartsSummary) Add(ds *Dataset) {
+	s.w.add(ds.Weights)
 	s.d.Outcome = ds.Outcome
 	s.d.RowsRead += ds.RowsRead
 	s.d.N += ds.N
@@ -299,6 +302,14 @@ func (s *PartsSummary) Add(ds *Dataset) {
 		}
 		s.d.Dropped[i].Rows += dc.Rows
 	}
+}
+
+// Weights is the rows kept and the weights' sum of all parts, summed in
+// the order of their rows, as one data set reads them: the total by which
+// sampling weights are rescaled in every part (Options.WholeWeights).
+func (s *PartsSummary) Weights() *WeightTotal {
+	t := s.w
+	return &t
 }
 
 // RowsRead is the number of data rows of all parts.

@@ -98,6 +98,16 @@ func (r *reader) finish(t *rowTally, d *Dataset) (*Dataset, error) {
 	if err := r.countDrops(t, d); err != nil {
 		return nil, err
 	}
+	if opt.Sampling {
+		total := weightTotal(d.Weights)
+		if opt.Part {
+			if opt.WholeWeights == nil {
+				return nil, &Error{File: r.file, Msg: errPartSampling.Error()}
+			}
+			total = *opt.WholeWeights
+		}
+		rescaleSampling(d.Weights, total)
+	}
 	if d.X == nil {
 		d.X = []float64{}
 	}

@@ -220,35 +220,6 @@ func columnMeanSDs(raw []float64, S, n int, w []float64) (mean, sd []float64) {
 	return mean, sd
 }
 
-// RowScaled is sampling weights on the scale at which the sample
-// constants (centring, scaling, knots, polynomial bases) and the
-// descriptive tables read them: rescaled to sum to the number of rows with
-// a positive weight. Sampling weights have no scale of their own (w and
-// w/sum(w) describe the same sample), while the formulas here read the
-// weights' sum as a number of observations (the SD's divisor sum - 1, the
-// quantile's position p (sum - 1)); frequency weights are that number and
-// are not rescaled. nil stays nil.
-func RowScaled(w []float64) []float64 {
-	if w == nil {
-		return nil
-	}
-	tot, rows := 0.0, 0
-	for _, x := range w {
-		if x > 0 {
-			tot += x
-			rows++
-		}
-	}
-	out := make([]float64, len(w))
-	if tot <= 0 {
-		return out
-	}
-	for i, x := range w {
-		out[i] = x * float64(rows) / tot
-	}
-	return out
-}
-
 func weight(w []float64, i int) float64 {
 	if w == nil {
 		return 1

@@ -48,7 +48,7 @@ type source struct {
 
 // localSource is the source of a fit of the rows of d, evaluated by pr;
 // sd is the predictors' standard deviations (nil: computed here).
-func localSource(d *Data, pr *problem, sd []float64) *source {
+func localSource(d *Data, pr *problem, sd []float64, sampling bool) *source {
 	switch {
 	case sd != nil:
 	case len(d.Predictors) == 0:
@@ -57,7 +57,7 @@ func localSource(d *Data, pr *problem, sd []float64) *source {
 		sd = predictorSD(d)
 	}
 	return &source{
-		predictors: d.Predictors, categories: d.categories(), J: d.J, nobs: d.NObs(), nrows: d.N(),
+		predictors: d.Predictors, categories: d.categories(), J: d.J, nobs: d.observations(sampling), nrows: d.N(),
 		fitted: func(theta []float64) (float64, int, error) {
 			minP, neg := pr.fittedCheck(theta)
 			return minP, neg, nil

@@ -109,8 +109,10 @@ type Options struct {
 	// Sampling says the weights are sampling weights: their scale is
 	// arbitrary (weights that sum to 1 describe the same sample as weights
 	// that sum to the population), so what a fit counts (observations
-	// against parameters, the groups of the calibration table) are rows,
-	// not the weights' sum.
+	// against parameters, for BIC, the groups of the calibration table)
+	// are rows, not the weights' sum (Observations). The log-likelihood is
+	// on the weights' scale: rescaled to sum to the rows (as the runner's
+	// reader does), it is on the sample's.
 	Sampling bool `json:"sampling,omitempty"`
 	// Sandwich, when set, replaces the covariance of every usable fit that
 	// Stepwise makes before it tests (robust or cluster-robust errors).
@@ -300,10 +302,7 @@ func fitChecked(d *Data, m Model, opt Options, sh *shared) (res *Result, err err
 	if err != nil {
 		return nil, &InputError{Msg: err.Error()}
 	}
-	nobs := d.NObs()
-	if opt.Sampling {
-		nobs = float64(d.N())
-	}
+	nobs := d.observations(opt.Sampling)
 	if float64(len(ly.params)) > nobs {
 		return nil, inputErr("model %s has %d parameters but only %g observations", m.Name(), len(ly.params), nobs)
 	}
@@ -336,7 +335,7 @@ func fitChecked(d *Data, m Model, opt Options, sh *shared) (res *Result, err err
 		// A fit that is not usable from there is made again from the
 		// usual start, so that it reads as it does without the stage.
 		if st, ok := pr.subsampleNewton(sh.subsample(d, opt), start, opt); ok {
-			if res, err := finish(localSource(d, pr, sd), m, ly, st, opt); err == nil && res.OK() {
+			if res, err := finish(localSource(d, pr, sd, opt.Sampling), m, ly, st, opt); err == nil && res.OK() {
 				return res, nil
 			}
 		}
@@ -347,7 +346,7 @@ func fitChecked(d *Data, m Model, opt Options, sh *shared) (res *Result, err err
 	} else {
 		st = pr.newton(start, opt.MaxIter, opt.Scoring)
 	}
-	src := localSource(d, pr, sd)
+	src := localSource(d, pr, sd, opt.Sampling)
 	return finish(src, m, ly, st, opt)
 }
 

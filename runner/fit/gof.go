@@ -136,8 +136,8 @@ func (t *ScoreGroups) count(d *Data, i, g int, score, probs []float64) {
 // degrees of freedom. A small p-value says the model misses a pattern
 // along its own predicted score.
 func LipsitzTest(d *Data, r *Result, groups int, opt Options) (*Lipsitz, error) {
-	if groups <= 0 && opt.Sampling {
-		groups = DefaultScoreGroups(float64(d.N()), d.J)
+	if groups <= 0 {
+		groups = DefaultScoreGroups(d.observations(opt.Sampling), d.J)
 	}
 	t, err := GroupByScore(d, r, groups)
 	if err != nil {

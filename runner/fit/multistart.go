@@ -155,7 +155,7 @@ func multiStart(d *Data, m Model, ly *layout, pr *problem, opt Options, sh *shar
 		}
 	}
 	best := runs[bestRun(runs)].st
-	src := localSource(d, pr, aux.sd)
+	src := localSource(d, pr, aux.sd, opt.Sampling)
 	res, err := finish(src, m, ly, *best, opt)
 	if err != nil {
 		return nil, err

@@ -538,11 +538,8 @@ func cutOverParts(base ScoreQuery, parts ScoreParts, groups, J int, sampling boo
 	if total <= 0 {
 		return nil, "no rows", nil
 	}
-	switch {
-	case groups <= 0 && sampling:
-		groups = DefaultScoreGroups(float64(rows), J) // as LipsitzTest
-	case groups <= 0:
-		groups = DefaultScoreGroups(total, J)
+	if groups <= 0 {
+		groups = DefaultScoreGroups(Observations(rows, total, sampling), J) // as LipsitzTest
 	}
 	c := &partCut{parts: parts, base: base, groups: groups, total: total}
 	if whole && total <= 1<<53 {

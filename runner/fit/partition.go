@@ -219,6 +219,7 @@ func FitFromSums(w Whole, m Model, sums func(theta []float64, order int) (*Sums,
 		}
 		nobs += n
 	}
+	nobs = Observations(w.Rows, nobs, opt.Sampling)
 	ly, err := newLayout(m, w.J, w.Predictors)
 	if err != nil {
 		return nil, &InputError{Msg: err.Error()}

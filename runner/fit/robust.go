@@ -152,11 +152,7 @@ func sandwich(d *Data, r *Result, clusters []string, probability, factor bool) (
 	if err != nil {
 		return nil, info, err
 	}
-	if probability {
-		N = float64(d.N())
-	} else {
-		N = d.NObs()
-	}
+	N = d.observations(probability)
 	switch info.Type {
 	case Clustered:
 		G := float64(info.Clusters)

@@ -25,7 +25,7 @@ func TIC(d *Data, r *Result, probability bool) (value, penalty float64, err erro
 	}
 	scale := 1.0
 	if probability && d.Weights != nil {
-		scale = float64(d.N()) / d.NObs()
+		scale = d.observations(true) / d.NObs()
 	}
 	penalty = scale * info.Trace
 	return scale*(-2*r.LogLik) + 2*penalty, penalty, nil

@@ -91,11 +91,11 @@ func (co *Coordinator) executeParts(jobs []runner.Job, paths []string, finished 
 			// the whole data's codes come from all parts, and every part
 			// is coded by them (FitPartitioned).
 			dopt := j.DataOptions
-			whole, refs, _, err := PartitionFiles(paths, dopt)
+			whole, refs, kept, err := PartitionFiles(paths, dopt)
 			if err != nil {
 				return nil, fmt.Errorf("queue: %s: %v", outcome, err)
 			}
-			w = &described{whole: whole, refs: refs, dopt: dopt}
+			w = &described{whole: whole, refs: refs, dopt: PartOptions(dopt, kept)}
 			wholes[string(key)] = w
 		}
 		m, err := j.Spec.Model()

@@ -41,6 +41,10 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 	var kept data.PartsSummary // the rows each part keeps, judged on the whole data
 	part := dopt
 	part.Part = true
+	// Sampling weights are rescaled by the whole data's total, known
+	// once every part is read: the parts are read here as they are, and
+	// the counts and spread rescaled after (wholeSampling).
+	part.Sampling, part.WholeWeights = false, nil
 	for _, p := range paths {
 		ds, err := data.Load(p, part)
 		if err != nil {
@@ -99,6 +103,9 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 		K := len(whole.Predictors)
 		whole.Moments = &fit.Moments{Mean: make([]float64, K), Cross: make([]float64, K*K)}
 	}
+	if dopt.Sampling {
+		wholeSampling(&whole, kept.Weights())
+	}
 	whole.Spread = whole.Moments.Spread()
 	// Predictors far from zero for their spread are fitted centred, as
 	// in a fit of the rows in one place (judged on the whole data).
@@ -107,4 +114,33 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 		return whole, nil, nil, err
 	}
 	return whole, refs, &kept, nil
+}
+
+// wholeSampling puts the whole data's weighted counts and moments, read
+// with the weights as they are, on the scale of sampling weights rescaled
+// to sum to the rows (data.Options.Sampling).
+func wholeSampling(whole *fit.Whole, t *data.WeightTotal) {
+	if !(t.Sum > 0) {
+		return
+	}
+	f := float64(t.Rows) / t.Sum
+	for j := range whole.Counts {
+		whole.Counts[j] *= f
+	}
+	if m := whole.Moments; m != nil {
+		m.Weight *= f
+		for k := range m.Cross {
+			m.Cross[k] *= f
+		}
+	}
+}
+
+// PartOptions are the options a part is read with alone: dopt, with the
+// whole data's total of sampling weights (kept from PartitionFiles) by
+// which each part's are rescaled.
+func PartOptions(dopt data.Options, kept *data.PartsSummary) data.Options {
+	if dopt.Sampling {
+		dopt.WholeWeights = kept.Weights()
+	}
+	return dopt
 }
