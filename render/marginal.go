@@ -15,6 +15,7 @@ import (
 // kind the plan asks for (average, at the means, at the plan's profile).
 func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	level, _ := confidence(r)
+	sampling := r.Analysis != nil && r.Analysis.Errors.Sampling
 	categorical := ""
 	if terms := or.TermDescriptions(); len(terms) > 0 {
 		categorical = " Effects are per column of the data, not per column of the model: for a categorical predictor (change \"reference to level\") the effect is the difference between the probabilities with the predictor at that level and at its reference level; for a numeric predictor that enters a transformation, polynomial, spline or interaction the derivative goes through every model column it enters."
@@ -24,7 +25,10 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		case "average":
 			d.h(3, "Average marginal effects")
 			d.p("How much the probability of each category changes with each predictor, averaged over the %d rows used%s with the other predictors as observed. For a 0/1 predictor (change \"0 to 1\") the effect is the difference between the probabilities with the predictor set to 1 and set to 0; for any other predictor (change \"per unit\") it is the derivative, the change per unit of the predictor. The effects of one predictor add up to zero over the categories. Standard errors by the delta method; intervals at %s, symmetric about the effect (the effect plus and minus a quantile times its standard error, since an effect, a change of a probability, can be negative).",
-				or.FitData.N(), weightedNote(or), pct(level))
+				or.FitData.N(), weightedNote(or, sampling), pct(level))
+			if sampling {
+				d.p("%s", samplingAverageNote)
+			}
 			if categorical != "" {
 				d.p("%s", strings.TrimSpace(categorical))
 			}
@@ -35,6 +39,9 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 				at = "every numeric predictor at its mean and every categorical one at its reference level, not at its shares in the data"
 			}
 			d.p("The same effects at one point: %s (%s), a 0/1 predictor changed from 0 to 1 with the others at that point. Standard errors by the delta method; intervals at %s, symmetric about the effect (the effect plus and minus a quantile times its standard error, since an effect, a change of a probability, can be negative).%s", at, pointList(or, set.Point), pct(level), categorical)
+			if sampling {
+				d.p("%s", samplingMeansNote)
+			}
 		case "profile":
 			d.h(3, "Marginal effects at the plan's profile")
 			d.p("The effects at the point %s (predictors the plan's profile does not set are at their means, categorical ones at their reference level; a 0/1 predictor is changed from 0 to 1, any other numeric predictor differentiated, at that point). Standard errors by the delta method; intervals at %s, symmetric about the effect (the effect plus and minus a quantile times its standard error, since an effect, a change of a probability, can be negative).%s", pointList(or, set.Point), pct(level), categorical)
@@ -104,12 +111,23 @@ func pointList(or *runner.OutcomeResult, x []float64) string {
 	return strings.Join(parts, ", ")
 }
 
-func weightedNote(or *runner.OutcomeResult) string {
-	if or.FitData.Weights != nil {
-		return " (weighted by the frequency weights)"
+func weightedNote(or *runner.OutcomeResult, sampling bool) string {
+	switch {
+	case or.FitData.Weights == nil:
+		return ""
+	case sampling:
+		return " (weighted by the sampling weights)"
 	}
-	return ""
+	return " (weighted by the frequency weights)"
 }
+
+// samplingAverageNote and samplingMeansNote say what the standard errors
+// of effects averaged over, or taken at the means of, the rows leave out
+// under sampling weights.
+const (
+	samplingAverageNote = "Under sampling weights these standard errors carry only the uncertainty of the estimated parameters (through their sandwich covariance): the average is taken over this sample's rows as if they were the population, so the sampling variation of the average itself is left out and the errors understate the uncertainty of a population average."
+	samplingMeansNote   = "Under sampling weights these standard errors carry only the uncertainty of the estimated parameters (through their sandwich covariance): the weighted means are taken as fixed, so their sampling variation is left out."
+)
 
 // pooledPoint says where the point of pooled effects at one point comes
 // from.

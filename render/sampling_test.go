@@ -5,6 +5,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -90,10 +91,22 @@ rules:
 		runner.SamplingCriteriaNote,
 		"Under sampling weights both are descriptive only",
 		"fitted by maximum pseudo-likelihood with the sampling weights of `w`",
-		"are not computed, so none of them is pooled",
+		"Under sampling weights "+runner.SamplingPoolingText()+".",
+		"Tests on imputed data under sampling weights: "+runner.SamplingPoolingText(),
+		runner.SamplingTestsText(),
 	)
+	// The one list of the tests that ignore the design names every test
+	// that is not computed or not a test here.
+	for _, name := range []string{"Brant", "likelihood-ratio", "score", "Wolfe-Gould", "Lipsitz", "Pulkstenis-Robinson"} {
+		if !slices.Contains(runner.SamplingIgnoredTests(), name) || !strings.Contains(runner.SamplingTestsText(), name) {
+			t.Errorf("the tests that ignore a sampling design leave out %s: %v", name, runner.SamplingIgnoredTests())
+		}
+	}
+	if slices.Contains(runner.SamplingIgnoredTests(), "Wald") {
+		t.Error("the Wald test with the sandwich covariance is listed among the tests that ignore a sampling design")
+	}
 	dec := string(files["decisions.json"])
-	hasAll(t, "decisions.json", dec, `"method": "none"`, "Wald tests pooled by D1 (with sampling weights no likelihood-based statistic is a test")
+	hasAll(t, "decisions.json", dec, `"method": "none"`, "Rubin's rules with Barnard-Rubin degrees of freedom; "+runner.SamplingPoolingText())
 	if strings.Contains(dec, "likelihood-ratio tests pooled by D3") {
 		t.Error("decisions.json's imputation method says likelihood-ratio tests were pooled by D3 under sampling weights")
 	}

@@ -255,6 +255,7 @@ tests: {parallel_lines: [wald]}
 rules:
   - reject_if_sparse: {per_parameter: 5, smallest_category: 10}
   - choose: {by: tic}
+inference: {marginal_effects: [average, means]}
 report: {timestamp: false}
 `
 	run := func(factor float64) map[string]string {
@@ -278,9 +279,8 @@ report: {timestamp: false}
 			}
 		}
 	}
-	if !strings.Contains(base["report.md"], "The sampling weights were rescaled to sum to the 150 rows used") {
-		t.Errorf("report.md does not say the weights were rescaled to the rows")
-	}
+	hasAll(t, "report.md", base["report.md"], "The sampling weights were rescaled to sum to the 150 rows used",
+		"averaged over the 150 rows used (weighted by the sampling weights)", samplingAverageNote, samplingMeansNote)
 
 	// The same rows as two parts, read as one data set.
 	dir := t.TempDir()
