@@ -49,6 +49,17 @@ func btoi(b bool) int {
 	return 0
 }
 
+// samplingTerms are the outcome and terms of the sampling-weight plans:
+// terms whose constants (centring, SD scaling, knots) the weights set.
+const samplingTerms = `outcomes: [{column: y, categories: ["1", "2", "3"]}]
+categorical:
+  site: {levels: [a, b, c]}
+predictors:
+  - {name: xs, column: x, centre: mean, scale: sd}
+  - {name: zs, column: z, spline: {quantiles: [0.1, 0.5, 0.9]}}
+  - site
+`
+
 // TestSamplingWeightsHaveNoScale: the same plan under sampling weights w
 // and w/sum(w) gives the same estimates, standard errors, design constants
 // (centring, SD scaling, quantile knots), descriptive tables,
@@ -61,14 +72,7 @@ func btoi(b bool) int {
 func TestSamplingWeightsHaveNoScale(t *testing.T) {
 	const plan = `version: 1
 data: {file: %s, weights: w, weight_kind: sampling}
-outcomes: [{column: y, categories: ["1", "2", "3"]}]
-categorical:
-  site: {levels: [a, b, c]}
-predictors:
-  - {name: xs, column: x, centre: mean, scale: sd}
-  - {name: zs, column: z, spline: {quantiles: [0.1, 0.5, 0.9]}}
-  - site
-models: {approaches: [cumulative], effects: [parallel]}
+` + samplingTerms + `models: {approaches: [cumulative], effects: [parallel]}
 tests: {parallel_lines: [wald]}
 rules:
   - choose: {by: tic}
@@ -243,14 +247,7 @@ func withoutData(t *testing.T, files map[string][]byte, dataPath string) map[str
 func TestSamplingWeightsSameBytes(t *testing.T) {
 	const plan = `version: 1
 data: {%s, weights: w, weight_kind: sampling}
-outcomes: [{column: y, categories: ["1", "2", "3"]}]
-categorical:
-  site: {levels: [a, b, c]}
-predictors:
-  - {name: xs, column: x, centre: mean, scale: sd}
-  - {name: zs, column: z, spline: {quantiles: [0.1, 0.5, 0.9]}}
-  - site
-models: {approaches: [cumulative, stage], effects: [parallel, nonparallel]}
+` + samplingTerms + `models: {approaches: [cumulative, stage], effects: [parallel, nonparallel]}
 tests: {parallel_lines: [wald]}
 rules:
   - reject_if_sparse: {per_parameter: 5, smallest_category: 10}
