@@ -277,7 +277,11 @@ report: {timestamp: false}
 		}
 	}
 	hasAll(t, "report.md", base["report.md"], "The sampling weights were rescaled to sum to the 150 rows used",
-		"averaged over the 150 rows used (weighted by the sampling weights)", samplingAverageNote, samplingMeansNote)
+		"averaged over the 150 rows used (weighted by the sampling weights)", samplingAverageNote, samplingMeansNote,
+		"means weighted by the sampling weights")
+	if strings.Contains(base["report.md"], "frequency weights") {
+		t.Errorf("report.md speaks of frequency weights under sampling weights")
+	}
 
 	// The same rows as two parts, read as one data set.
 	dir := t.TempDir()

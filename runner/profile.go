@@ -154,7 +154,11 @@ func (pf *Profile) HeldAt() string {
 	if pf.hasOff {
 		s += fmt.Sprintf(" and the offset at its mean (%s)", numfmt.Num(pf.offset))
 	}
-	if pf.or.Data.Weights != nil {
+	switch {
+	case pf.or.Data.Weights == nil:
+	case pf.or.Data.Sampling:
+		s += ", means weighted by the sampling weights"
+	default:
 		s += ", means weighted by the frequency weights"
 	}
 	return s

@@ -31,6 +31,9 @@ type Dataset struct {
 	X          []float64 // kept rows, row-major N x K
 	N, K       int
 	Weights    []float64 // nil when no weights column
+	// Sampling says Weights are sampling weights, read rescaled to sum
+	// to the rows (Options.Sampling).
+	Sampling bool
 	Offset     []float64 // nil when none
 	Cluster    []string  // nil when none
 	RowsRead   int       // data rows in the file

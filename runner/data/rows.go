@@ -107,6 +107,7 @@ func (r *reader) finish(t *rowTally, d *Dataset) (*Dataset, error) {
 			total = *opt.WholeWeights
 		}
 		rescaleSampling(d.Weights, total)
+		d.Sampling = d.Weights != nil
 	}
 	if d.X == nil {
 		d.X = []float64{}
