@@ -34,9 +34,9 @@ type Dataset struct {
 	// Sampling says Weights are sampling weights, read rescaled to sum
 	// to the rows (Options.Sampling).
 	Sampling bool
-	Offset     []float64 // nil when none
-	Cluster    []string  // nil when none
-	RowsRead   int       // data rows in the file
+	Offset   []float64 // nil when none
+	Cluster  []string  // nil when none
+	RowsRead int       // data rows in the file
 	// Incomplete counts the kept rows with a missing outcome or predictor
 	// (Options.KeepIncomplete).
 	Incomplete  int
