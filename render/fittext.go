@@ -50,7 +50,7 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 		fmt.Fprintf(tw, "Data\t%s: %d rows read, %d used; %s\n", ds.File, ds.RowsRead, ds.RowsUsed, ds.DropSummary)
 	}
 	if ds.Sampling {
-		fmt.Fprintf(tw, "Observations\t%d rows; sampling weights summing to %s (AIC and BIC descriptive only)\n", r.NRows, numfmt.Count(r.NObs))
+		fmt.Fprintf(tw, "Observations\t%d rows; sampling weights, rescaled to sum to the rows (AIC and BIC descriptive only)\n", r.NRows)
 	} else {
 		fmt.Fprintf(tw, "Observations\t%s\n", numfmt.Count(r.NObs))
 	}
