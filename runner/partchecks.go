@@ -56,11 +56,7 @@ func PartitionedChecks(s SingleFit, res *fit.Result, parts []string, whole fit.W
 		P := len(ds.Predictors)
 		for k, name := range res.Predictors {
 			c := slices.Index(ds.Predictors, name)
-			binary[k] = binary[k] && c >= 0
-			for i := 0; i < ds.N && binary[k]; i++ {
-				v := ds.X[i*P+c]
-				binary[k] = v == 0 || v == 1
-			}
+			binary[k] = binary[k] && c >= 0 && zeroOne(ds.X, P, c)
 		}
 	}
 	o := fit.OverallFitSpread(res, null, &spread)

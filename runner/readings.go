@@ -53,7 +53,7 @@ func columnReadings(dz *design.Design, raw *data.Dataset, fd *fit.Data) []Column
 		if fd == nil {
 			return nil
 		}
-		return plainReadings(fd.Predictors, make([]bool, len(fd.Predictors)))
+		return plainReadings(fd.Predictors, zeroOneColumns(fd))
 	}
 	per := make([][]ColumnReading, len(dz.Terms)) // the columns of each term, without Where
 	for k := range dz.Terms {
@@ -163,13 +163,30 @@ func termReadings(dz *design.Design, raw *data.Dataset, k int, per [][]ColumnRea
 // binarySource reports whether numeric source s of design dz takes only 0
 // and 1 in the raw rows.
 func binarySource(dz *design.Design, raw *data.Dataset, s int) bool {
-	S := len(dz.Sources)
-	for i := 0; i < raw.N; i++ {
-		if v := raw.X[i*S+s]; v != 0 && v != 1 {
+	return zeroOne(raw.X, len(dz.Sources), s)
+}
+
+// zeroOne reports whether column c of the row-major rows x, of width
+// columns, takes only 0 and 1: the one rule by which a numeric column's
+// odds ratio reads "1 against 0" (whole data, a fit without a design, and
+// parts, where every part must pass).
+func zeroOne(x []float64, width, c int) bool {
+	for i := c; i < len(x); i += width {
+		if v := x[i]; v != 0 && v != 1 {
 			return false
 		}
 	}
 	return true
+}
+
+// zeroOneColumns applies zeroOne to every column of fd's rows.
+func zeroOneColumns(fd *fit.Data) []bool {
+	K := len(fd.Predictors)
+	out := make([]bool, K)
+	for k := range out {
+		out[k] = len(fd.X) == fd.N()*K && zeroOne(fd.X, K, k)
+	}
+	return out
 }
 
 // valueText writes the value a numeric term's columns are made of, before
