@@ -181,6 +181,8 @@ func independenceSentence(r *runner.Result) string {
 			s += fmt.Sprintf(" With %d clusters (fewer than about 40) the cluster-robust errors themselves tend to be too small.", g)
 		}
 		return s
+	case pol.Sampling:
+		return "Each model is fitted to the sampling-weighted rows as a pseudo-likelihood, the weights rescaled to sum to the rows used (their scale is arbitrary; the estimates and sandwich errors do not depend on it, and the log-likelihoods, AIC, BIC and TIC are on the scale of the sample); it assumes " + shape + " The sandwich standard errors, intervals and Wald tests treat the rows as independent draws with these weights (no strata, and no clusters unless clustered errors are asked for); " + runner.SamplingTestsText() + ". Errors of average marginal effects carry only the parameters' uncertainty, not the sampling variation of the average."
 	case pol.Covariance.IsSandwich() && !pol.Sampling:
 		return "Each model assumes that observations are independent given the predictors, " + shape + " The sandwich standard errors, intervals and Wald tests stay valid when the variance the model implies is wrong; the likelihood-ratio, score, Brant and Wolfe-Gould tests and AIC and BIC do not."
 	}

@@ -94,6 +94,10 @@ func TestIndependenceSentence(t *testing.T) {
 		return &runner.Result{Plan: p, Analysis: &runner.Analysis{Errors: runner.CovariancePolicy{Covariance: cov}},
 			Outcomes: []*runner.OutcomeResult{{Data: ds}}}
 	}
+	sampling := func(r *runner.Result) *runner.Result {
+		r.Analysis.Errors.Sampling = true
+		return r
+	}
 	for _, c := range []struct {
 		r          *runner.Result
 		want, lack []string
@@ -102,6 +106,7 @@ func TestIndependenceSentence(t *testing.T) {
 		{result(fit.Clustered, 50), []string{"within the 50 clusters of `district`"}, []string{"fewer than about 40"}},
 		{result(fit.Sandwich, 0), []string{"sandwich standard errors, intervals and Wald tests stay valid"}, []string{"clusters"}},
 		{result(fit.Observed, 0), []string{"Each model assumes that observations are independent given the predictors"}, []string{"clusters", "sandwich"}},
+		{sampling(result(fit.Sandwich, 0)), []string{"rescaled to sum to the rows used", "no clusters unless clustered errors are asked for", runner.SamplingTestsText(), "Errors of average marginal effects carry only the parameters' uncertainty"}, []string{"stay valid"}},
 	} {
 		s := independenceSentence(c.r)
 		for _, w := range c.want {
