@@ -30,7 +30,7 @@ func writeChosen(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	if s := negativeRows(res); s != "" {
 		d.p("**Warning:** this model %s: its cumulative probabilities cross inside the data, so for those rows it is not a probability distribution over the categories.%s Its estimates, predicted probabilities and marginal effects come from a model that is not a valid probability model for those rows; read them with care.", s, negativeRule(r, or))
 	}
-	if n := res.CollinearNote(); n != "" {
+	if n := res.CollinearNote(mdCode); n != "" {
 		d.p("**Warning:** %s.", n)
 	}
 	grouped := or.Design != nil && !or.Design.Trivial()

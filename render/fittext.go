@@ -88,7 +88,7 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 	if r.Status == fit.StatusNegativeProbs {
 		fmt.Fprintf(w, "Warning: %s.\n", r.Message)
 	}
-	if n := r.CollinearNote(); n != "" {
+	if n := r.CollinearNote(func(s string) string { return s }); n != "" {
 		fmt.Fprintf(w, "Warning: %s.\n", n)
 	}
 	return nil

@@ -157,16 +157,55 @@ func writeModelTable(d *doc, or *runner.OutcomeResult, sampling bool) {
 	for _, n := range or.Notes {
 		d.p("%s.", strings.TrimSuffix(n, "."))
 	}
-	for _, f := range or.Fits {
-		if !f.Auxiliary && f.Result != nil {
-			if n := f.Result.CollinearNote(); n != "" {
-				d.p("Warning, %s: %s.", f.ID, n)
-			}
-		}
+	for _, n := range collinearNotes(or) {
+		d.p("%s", n)
 	}
 	if c := criteriaChart(d, or, sampling); c != nil {
 		d.charts("Chart in report.html: AIC and BIC of every candidate model.", c)
 	}
+}
+
+// collinearNotes warns of near-collinearity among the candidate models:
+// one sentence per flagged term (in the order first met in the grid),
+// naming the models whose fits flag it and the range of its variance
+// inflation over them, term and model names escaped.
+func collinearNotes(or *runner.OutcomeResult) []string {
+	type flagged struct {
+		models   []string
+		low, top float64
+	}
+	var order []string
+	by := map[string]*flagged{}
+	for _, f := range or.Fits {
+		if f.Auxiliary || f.Result == nil {
+			continue
+		}
+		for _, v := range f.Result.Collinear {
+			t := by[v.Term]
+			if t == nil {
+				t = &flagged{low: v.Factor, top: v.Factor}
+				by[v.Term] = t
+				order = append(order, v.Term)
+			}
+			t.models = append(t.models, mdText(f.ID))
+			t.low, t.top = math.Min(t.low, v.Factor), math.Max(t.top, v.Factor)
+		}
+	}
+	out := make([]string, len(order))
+	for i, term := range order {
+		t := by[term]
+		factor := fmt.Sprintf("%.3g", t.low)
+		if t.top != t.low {
+			factor = fmt.Sprintf("%.3g to %.3g", t.low, t.top)
+		}
+		which := "model " + t.models[0]
+		if len(t.models) > 1 {
+			which = "models " + joinAnd(t.models)
+		}
+		out[i] = fmt.Sprintf("**Warning**, near-collinearity: the slopes of %s have variance inflation %s in %s; %s.",
+			mdCode(term), factor, which, fit.CollinearMeaning)
+	}
+	return out
 }
 
 func modelRow(f *runner.FitEntry) []string {

@@ -205,11 +205,14 @@ func imputationNumbers(src string, im *plan.Imputed, dl data.Dialect) (int, erro
 
 // poolJobs fits every job on every imputed set and replaces each job's
 // result by the pooled one (Rubin's rules; log-likelihood, AIC and BIC are
-// the means over the sets). It returns the per-set fits, by set then job.
+// the means over the sets). Each set's fit takes the step of
+// CovariancePolicy.Settle (the near-collinearity check of terms, then the
+// sandwich); the pooled fit flags a term any set flags (poolCollinear).
+// It returns the per-set fits, by set then job.
 // With an Executor the fits of every set are its jobs, all in one batch:
 // each set is handed over as a data file and the jobs carry the design
 // frozen on set 1.
-func poolJobs(a *Analysis, sets []*data.Dataset, jobs []*FitEntry, run *ImputedRun, opt Options, outcome string) ([][]*FitEntry, error) {
+func poolJobs(a *Analysis, sets []*data.Dataset, terms []fit.Term, jobs []*FitEntry, run *ImputedRun, opt Options, outcome string) ([][]*FitEntry, error) {
 	perSet := make([][]*FitEntry, run.M)
 	grids := make([]gridPart, run.M)
 	for k, d := range run.Sets {
@@ -220,7 +223,7 @@ func poolJobs(a *Analysis, sets []*data.Dataset, jobs []*FitEntry, run *ImputedR
 		}
 		perSet[k] = cp
 		grids[k] = gridPart{entries: cp, target: gridTarget{label: fmt.Sprintf("%s, imputed set %d/%d", outcome, k+1, run.M), data: d,
-			fit: a.Fit, settle: a.Errors.Sandwich(sets[k], d)}}
+			fit: a.Fit, settle: a.Errors.Settle(sets[k], d, terms)}}
 	}
 	if err := run.remote(opt.Executor, grids, outcome); err != nil {
 		return nil, err
@@ -324,7 +327,35 @@ func poolResults(rs []*fit.Result, obs float64, data []*fit.Data) (*fit.Result, 
 	if err := poolNegatives(&r, data); err != nil {
 		return nil, nil, err
 	}
+	r.Collinear = poolCollinear(rs)
 	return &r, pl, nil
+}
+
+// poolCollinear is the near-collinearity of a pooled fit: a term is
+// flagged when any imputed set's fit flags it, with the largest variance
+// inflation over those sets and the sets (numbered from 1) that flag it,
+// in the order first met (set 1's terms first).
+func poolCollinear(rs []*fit.Result) []fit.Inflation {
+	var out []fit.Inflation
+	at := map[string]int{}
+	for k, r := range rs {
+		for _, v := range r.Collinear {
+			i, ok := at[v.Term]
+			if !ok {
+				i = len(out)
+				at[v.Term] = i
+				out = append(out, fit.Inflation{Term: v.Term, Parameters: v.Parameters})
+			}
+			out[i].Factor = math.Max(out[i].Factor, v.Factor)
+			out[i].Sets = append(out[i].Sets, k+1)
+		}
+	}
+	if len(rs) < 2 {
+		for i := range out {
+			out[i].Sets = nil
+		}
+	}
+	return out
 }
 
 // poolNegatives sets the pooled fit r's count of rows with a negative
@@ -607,7 +638,7 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 	or.FreeSets, or.Stepwise = freeSets(an, or.Terms, pooledStepwise(an, or), backward, opt.Workers)
 	jobs, notes := gridJobs(an, or.Terms, or.FreeSets, backward)
 	or.Notes = append(or.Notes, notes...)
-	perSet, err := poolJobs(an, sets, jobs, run, opt, oc.Column)
+	perSet, err := poolJobs(an, sets, or.Terms, jobs, run, opt, oc.Column)
 	if err != nil {
 		return nil, err
 	}

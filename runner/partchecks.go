@@ -91,3 +91,23 @@ func (a *Analysis) PartsRank(whole fit.Whole) error {
 	}
 	return a.designError(r, dz, err, "")
 }
+
+// PartsCollinearity checks a fit over parts for near-collinearity of its
+// terms (fit.Result.CheckCollinearity), as CovariancePolicy.Settle checks
+// a fit of the whole file: the terms are the fit's design's, or one per
+// predictor column when the design cannot be built from the parts' columns.
+func (a *Analysis) PartsCollinearity(res *fit.Result, whole fit.Whole) {
+	if res == nil || !res.OK() {
+		return
+	}
+	var terms []fit.Term
+	dz, err := design.Build(a.Outcomes[0].Design, nil, 0, nil, nil)
+	if err == nil && slices.Equal(dz.Columns, whole.Predictors) {
+		terms = termsOf(dz)
+	} else {
+		for _, p := range whole.Predictors {
+			terms = append(terms, fit.Term{Name: p, Columns: []string{p}})
+		}
+	}
+	res.CheckCollinearity(terms)
+}

@@ -810,7 +810,7 @@ func catalogue(dir string) (items []badInput) {
 				}
 			}},
 		{id: "M19", name: "near-collinear predictors (near = a plus a wobble of 2e-4)", args: fitArgs(d("scales.csv"), "--predictors", "a,near,b"), code: 0,
-			want: []string{"Status           ok", "Warning: near-collinearity: the slopes of a and near have variance inflation ", "(at least 100: standard errors at least 10 times those of columns unrelated to the other terms)"}},
+			want: []string{"Status           ok", "Warning: near-collinearity: the slopes of a and near have variance inflation ", "; at least 100 means standard errors about 10 times or more those of columns unrelated to the other terms (exactly so for a term of one column; for a term of several columns GVIF^(1/df) is a geometric mean over its dimensions)"}},
 		{id: "M3", name: "constant predictor in a plan run", args: []string{"run"}, plan: edit("[a, b]", "[a, c]"), code: 1,
 			want: []string{`"c" is constant`}},
 		{id: "M4", name: "complete separation", args: fitArgs(d("sep.csv"), "--predictors", "x,z"), code: 1,

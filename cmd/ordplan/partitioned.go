@@ -53,6 +53,7 @@ func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, std
 	if err != nil {
 		return fail(stderr, err)
 	}
+	a.PartsCollinearity(res, whole)
 	var lz *fit.Lipsitz
 	if res.OK() {
 		// A failed test (a worker's error, an oversized reply, no reply

@@ -9,10 +9,12 @@ import (
 )
 
 // InflationLimit is the variance inflation of a term's slopes at which a
-// fit is said to be nearly collinear (Result.Collinear): the term's
-// standard errors are then at least sqrt(100) = 10 times what they would
-// be were its columns unrelated to the other terms' (1 - R^2 at most 0.01
-// for a single column). The rank check refuses only exact combinations
+// fit is said to be nearly collinear (Result.Collinear). For a term of
+// one column its standard error is then at least sqrt(100) = 10 times
+// what it would be were the column unrelated to the other terms' (1 - R^2
+// at most 0.01); for a term of df > 1 slopes GVIF^(1/df) is a geometric
+// mean over the term's df dimensions, so the statement holds on average,
+// not for each slope. The rank check refuses only exact combinations
 // (1 - R^2 below 1e-10); between the two, a fit is valid but its separate
 // effects are poorly determined.
 const InflationLimit = 100
@@ -30,6 +32,9 @@ type Inflation struct {
 	Term       string   `json:"term"`
 	Parameters []string `json:"parameters"`
 	Factor     float64  `json:"variance_inflation"` // GVIF^(1/df)
+	// Sets: for a fit pooled over imputed sets, the sets (numbered from
+	// 1) whose fits flag the term; Factor is then the largest of theirs.
+	Sets []int `json:"imputed_sets,omitempty"`
 }
 
 // CheckCollinearity sets r.Collinear to the terms whose variance
@@ -154,29 +159,50 @@ func logDetBlock(A []float64, n int, b []int) (float64, bool) {
 }
 
 // CollinearNote is the sentence that warns of near-collinearity in the
-// fit (r.Collinear), naming the terms; "" when there is none.
-func (r *Result) CollinearNote() string {
+// fit (r.Collinear), naming the terms through name (the identity for
+// plain text, an escaping for Markdown); "" when there is none. A pooled
+// fit's terms name the imputed sets that flag them.
+func (r *Result) CollinearNote(name func(string) string) string {
 	if len(r.Collinear) == 0 {
 		return ""
 	}
+	names := make([]string, len(r.Collinear))
 	parts := make([]string, len(r.Collinear))
 	for i, v := range r.Collinear {
+		names[i] = name(v.Term)
 		parts[i] = fmt.Sprintf("%.3g", v.Factor)
+		if len(v.Sets) > 0 {
+			parts[i] += " (" + setList(v.Sets) + ")"
+		}
 	}
-	return fmt.Sprintf("near-collinearity: the slopes of %s have variance inflation %s (at least %d: standard errors at least %d times those of columns unrelated to the other terms); their columns are nearly linear combinations of the other terms' columns, so their separate effects and tests are poorly determined, though the fit is valid",
-		termList(r.Collinear), strings.Join(parts, ", "), InflationLimit, int(math.Sqrt(InflationLimit)))
+	return fmt.Sprintf("near-collinearity: the slopes of %s have variance inflation %s; %s",
+		joinNames(names), strings.Join(parts, ", "), CollinearMeaning)
 }
 
-func termList(v []Inflation) string {
-	names := make([]string, len(v))
-	for i, x := range v {
-		names[i] = x.Term
+// CollinearMeaning says what a variance inflation at or above
+// InflationLimit means, after the terms and their factors are named.
+var CollinearMeaning = fmt.Sprintf("at least %d means standard errors about %d times or more those of columns unrelated to the other terms (exactly so for a term of one column; for a term of several columns GVIF^(1/df) is a geometric mean over its dimensions); their columns are nearly linear combinations of the other terms' columns, so their separate effects and tests are poorly determined, though the fit is valid",
+	InflationLimit, int(math.Sqrt(InflationLimit)))
+
+// setList names imputed sets: "imputed set 2", "imputed sets 1, 2 and 4".
+func setList(sets []int) string {
+	s := make([]string, len(sets))
+	for i, k := range sets {
+		s[i] = fmt.Sprint(k)
 	}
+	if len(s) == 1 {
+		return "imputed set " + s[0]
+	}
+	return "imputed sets " + joinNames(s)
+}
+
+// joinNames joins names as "a", "a and b", "a, b and c".
+func joinNames(names []string) string {
 	switch len(names) {
+	case 0:
+		return ""
 	case 1:
 		return names[0]
-	case 2:
-		return names[0] + " and " + names[1]
 	}
 	return strings.Join(names[:len(names)-1], ", ") + " and " + names[len(names)-1]
 }

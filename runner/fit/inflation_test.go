@@ -146,7 +146,7 @@ func TestCollinearTermsFlagged(t *testing.T) {
 		if len(res.Collinear) != 2 || res.Collinear[0].Term != "x1" || res.Collinear[1].Term != "x2" {
 			t.Errorf("%s: flagged %+v, want x1 and x2", res.Name, res.Collinear)
 		}
-		if res.CollinearNote() == "" {
+		if res.CollinearNote(func(s string) string { return s }) == "" {
 			t.Errorf("%s: no note", res.Name)
 		}
 		res.CheckCollinearity([]Term{{Name: "x", Columns: []string{"x1", "x2"}}, {Name: "x3", Columns: []string{"x3"}}, {Name: "z", Columns: []string{"z"}}})
