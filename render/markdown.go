@@ -91,6 +91,20 @@ func writeSummary(d *doc, r *runner.Result) {
 	d.p("The sections below give the data, every candidate model, the tests, each decision rule's verdict on each model, and then the chosen model's estimates, predicted probabilities and marginal effects. report.html holds the same text with charts.")
 }
 
+// errorsCell is the plan table's standard errors: the plan's value, and
+// what the fits used when the covariance policy replaced it (a sandwich
+// under sampling weights).
+func errorsCell(r *runner.Result) string {
+	asked := r.Plan.Covariance.String()
+	if r.Analysis == nil {
+		return asked
+	}
+	if used := r.Analysis.Errors.Covariance.String(); used != asked {
+		return fmt.Sprintf("%s in the plan; %s used, as sampling weights require", asked, used)
+	}
+	return asked
+}
+
 func writePlan(d *doc, r *runner.Result) {
 	p := r.Plan
 	d.h(2, "The plan")
@@ -100,7 +114,7 @@ func writePlan(d *doc, r *runner.Result) {
 		{"Effect structures", joinWords(p.Models.Effects)},
 		{"Links", joinWords(p.Models.Links)},
 		{"Parallel-lines tests", joinWords(p.Tests.ParallelLines) + fmt.Sprintf(" (alpha %g)", p.Tests.Alpha)},
-		{"Standard errors", p.Covariance.String()},
+		{"Standard errors", errorsCell(r)},
 		{"Missing values", p.Data.Missing},
 	}
 	if p.Models.Partial.Select != nil {

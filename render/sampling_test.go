@@ -38,6 +38,7 @@ rules:
 	md := string(files["report.md"])
 	const why = "not computed: not valid with sampling weights: the fits maximize a pseudo-likelihood; use the Wald test"
 	hasAll(t, "report.md", md,
+		"| Standard errors | observed in the plan; sandwich used, as sampling weights require |",
 		"| Likelihood ratio (all predictors) |  |  | "+why+" |",
 		"| Score (all predictors) |  |  | "+why+" |",
 		"| Brant (all predictors) |  |  | "+why+" |",
