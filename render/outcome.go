@@ -157,7 +157,7 @@ func writeModelTable(d *doc, or *runner.OutcomeResult, sampling bool) {
 	for _, n := range or.Notes {
 		d.p("%s.", strings.TrimSuffix(n, "."))
 	}
-	for _, n := range collinearNotes(or) {
+	if n := collinearNote(or); n != "" {
 		d.p("%s", n)
 	}
 	if c := criteriaChart(d, or, sampling); c != nil {
@@ -165,11 +165,12 @@ func writeModelTable(d *doc, or *runner.OutcomeResult, sampling bool) {
 	}
 }
 
-// collinearNotes warns of near-collinearity among the candidate models:
-// one sentence per flagged term (in the order first met in the grid),
-// naming the models whose fits flag it and the range of its variance
-// inflation over them, term and model names escaped.
-func collinearNotes(or *runner.OutcomeResult) []string {
+// collinearNote warns of near-collinearity among the candidate models in
+// one paragraph: one clause per flagged term (in the order first met in
+// the grid) naming the models whose fits flag it and the range of its
+// variance inflation over them, term and model names escaped, then what
+// the measure means, once; "" when no candidate flags a term.
+func collinearNote(or *runner.OutcomeResult) string {
 	type flagged struct {
 		models   []string
 		low, top float64
@@ -191,6 +192,9 @@ func collinearNotes(or *runner.OutcomeResult) []string {
 			t.low, t.top = math.Min(t.low, v.Factor), math.Max(t.top, v.Factor)
 		}
 	}
+	if len(order) == 0 {
+		return ""
+	}
 	out := make([]string, len(order))
 	for i, term := range order {
 		t := by[term]
@@ -202,10 +206,9 @@ func collinearNotes(or *runner.OutcomeResult) []string {
 		if len(t.models) > 1 {
 			which = "models " + joinAnd(t.models)
 		}
-		out[i] = fmt.Sprintf("**Warning**, near-collinearity: the slopes of %s have variance inflation %s in %s; %s.",
-			mdCode(term), factor, which, fit.CollinearMeaning)
+		out[i] = fmt.Sprintf("the slopes of %s have variance inflation %s in %s", mdCode(term), factor, which)
 	}
-	return out
+	return fmt.Sprintf("**Warning**, near-collinearity: %s; %s.", strings.Join(out, "; "), fit.CollinearMeaning)
 }
 
 func modelRow(f *runner.FitEntry) []string {
