@@ -41,13 +41,19 @@ func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 func writeData(d *doc, or *runner.OutcomeResult, sampling bool) {
 	ds := or.AsRead()
 	d.h(3, "Data")
-	obs := fmt.Sprintf("Observations (sum of weights): %s.", numfmt.Count(ds.NObs()))
-	if sampling && ds.Weights != nil {
+	obs := ""
+	switch {
+	case ds.Weights != nil && !sampling:
+		obs = fmt.Sprintf("Observations (the frequency weights' sum): %s.", numfmt.Count(ds.NObs()))
+	case sampling && ds.Weights != nil:
 		// Read rescaled (data.Options.Sampling): the weights' own scale
 		// means nothing, so no number here depends on it.
 		obs = fmt.Sprintf("The sampling weights were rescaled to sum to the %d rows used (their scale carries no information); the counts below are weighted by them.", ds.N)
 	}
-	d.p("Outcome column %s, %d categories in this order: %s. %d rows read, %d used; %s. %s",
+	if obs != "" {
+		obs = " " + obs
+	}
+	d.p("Outcome column %s, %d categories in this order: %s. %d rows read, %d used; %s.%s",
 		mdCode(or.Outcome.Column), len(ds.Categories), mdText(strings.Join(ds.Categories, " < ")), ds.RowsRead, ds.N, ds.DropSummary(), obs)
 	var rows [][]string
 	if ob := or.Observed; ob != nil {
