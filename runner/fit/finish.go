@@ -3,6 +3,8 @@ package fit
 import (
 	"fmt"
 	"math"
+	"os"
+	"slices"
 	"sort"
 	"strings"
 
@@ -255,6 +257,9 @@ func (src *source) certify(r *Result, ly *layout, st newtonState, info []float64
 		}
 	}
 	if v := flatDirection(src.loglik, ly, st.theta, st.ll, info, src.sd); v != nil {
+		return true, v
+	}
+	if v := explodingDirection(src.loglik, ly, st.theta, st.ll, info, src.sd); v != nil {
 		return true, v
 	}
 	return false, minVec
@@ -531,6 +536,14 @@ func flatDirection(loglik evalFunc, ly *layout, theta []float64, ll float64, inf
 	if !(most > 0) || math.IsInf(most, 0) {
 		return nil
 	}
+	if os.Getenv("SEPDEBUG") != "" {
+		for _, units := range []float64{1, 5, 20, 100, 300, 1000, 3000, 1e4, 1e5} {
+			for _, sign := range []float64{1, -1} {
+				a := loglik(addScaled(theta, d, sign*units/most), 0)
+				fmt.Fprintf(os.Stderr, "  flatray %d units %v sign %v bad %v dll %.6g\n", worst, units, sign, a.bad, a.ll-ll)
+			}
+		}
+	}
 	for _, units := range []float64{5, 20} {
 		for _, sign := range []float64{1, -1} {
 			a := loglik(addScaled(theta, d, sign*units/most), 0)
@@ -544,6 +557,272 @@ func flatDirection(loglik evalFunc, ly *layout, theta []float64, ll float64, inf
 		}
 	}
 	return nil
+}
+
+// explodingDirection finds separation whose estimates stay moderate and
+// that the checks above miss: several parameters diverging together, or
+// a product phi_m * g_k (constrained and stereotype effects) whose ridge is
+// curved in g and phi. It works on the pieces of the linear predictor: the
+// cutpoints, the unconstrained slopes (times their predictor's SD) and the
+// effects phi_m * g_k of each constrained group (times the SD; their
+// errors by the delta method); a piece is exploding when its standard
+// error exceeds 100 units of the linear predictor. Two rays are tried:
+//  1. the exploding pieces scaled together by 1 + t, the others held (in a
+//     group the whole equation m: g by c_1 and phi_m by c_m / c_1, which
+//     stays in the product's terms);
+//  2. in a model with a constrained group, the ridge of its widest effect:
+//     that effect's covariance column taken to the pieces (the delta
+//     method), followed straight in the pieces and brought back to the
+//     product's terms (g from equation 1, phi_m by least squares), stepped
+//     by 5 and 20 units of the linear predictor (the piece moving most),
+//     each way.
+//
+// A ray is accepted only when the log-likelihood does not fall (beyond
+// 1e-11 relative) at two distances along it, and only when a finite
+// maximum would fall there by more than that: by the quadratic bound
+// 0.5 * (step / error)^2 of a piece moved by step, at the farther distance
+// at least 9 (ray 1) or 16 (ray 2) times the tolerance. It returns the
+// direction (scaled coordinates, the tangent at the start) or nil.
+func explodingDirection(loglik evalFunc, ly *layout, theta []float64, ll float64, info, sd []float64) []float64 {
+	P := len(theta)
+	if len(ly.params) != P {
+		return nil
+	}
+	cov, err := invertSym(info, P)
+	if err != nil {
+		return nil
+	}
+	const wide = 1e2
+	tol := 1e-11 * math.Max(1, math.Abs(ll))
+	q := ly.J - 1
+	unit := make([]float64, P) // the linear predictor's change per unit of a cutpoint or unconstrained slope
+	for i, pa := range ly.params {
+		switch pa.kind {
+		case pCut:
+			unit[i] = 1
+		case pParallel, pFree:
+			unit[i] = sd[pa.k]
+		}
+	}
+	phis := make([][]float64, len(ly.groups))
+	for d := range ly.groups {
+		phis[d] = ly.phi(theta, d)
+	}
+	// effectGrad is the gradient of phi_m * g_k in theta.
+	effectGrad := func(d, m, k int) []float64 {
+		g := make([]float64, P)
+		g[ly.slope[k]] = phis[d][m]
+		if pi := ly.phiIndex[d][m]; pi >= 0 {
+			g[pi] = theta[ly.slope[k]]
+		}
+		return g
+	}
+	falls := func(x []float64) (bool, bool) {
+		a := loglik(x, 0)
+		return a.bad, !a.bad && a.ll < ll-tol
+	}
+	scaledDir := func(v []float64) []float64 {
+		out := make([]float64, P)
+		for i := range v {
+			out[i] = v[i] * math.Sqrt(math.Max(info[i*P+i], 0))
+		}
+		return out
+	}
+
+	// Ray 1: the exploding pieces scaled.
+	free := make([]bool, P)
+	eq := make([][]bool, len(ly.groups))
+	found, z := false, 0.0
+	for i := range ly.params {
+		if v := cov[i*P+i]; unit[i] > 0 && v > 0 && math.Sqrt(v)*unit[i] > wide {
+			free[i], found = true, true
+			z = math.Max(z, math.Abs(theta[i])/math.Sqrt(v))
+		}
+	}
+	for d, ks := range ly.groups {
+		eq[d] = make([]bool, q)
+		for m := 0; m < q; m++ {
+			for _, k := range ks {
+				g := effectGrad(d, m, k)
+				if v := quad(cov, g, P); v > 0 && math.Sqrt(v)*sd[k] > wide {
+					eq[d][m], found = true, true
+				}
+			}
+			for _, k := range ks {
+				if eq[d][m] {
+					if v := quad(cov, effectGrad(d, m, k), P); v > 0 {
+						z = math.Max(z, math.Abs(phis[d][m]*theta[ly.slope[k]])/math.Sqrt(v))
+					}
+				}
+			}
+		}
+	}
+	if found && 0.5*z*z >= tol {
+		scaled := func(t float64) []float64 {
+			x := slices.Clone(theta)
+			for i := range x {
+				if free[i] {
+					x[i] *= 1 + t
+				}
+			}
+			for d, ks := range ly.groups {
+				c := func(m int) float64 {
+					if eq[d][m] {
+						return 1 + t
+					}
+					return 1
+				}
+				for _, k := range ks {
+					x[ly.slope[k]] *= c(0)
+				}
+				for m := 1; m < q; m++ {
+					x[ly.phiIndex[d][m]] *= c(m) / c(0)
+				}
+			}
+			return x
+		}
+		evaluated := 0
+		for _, t := range []float64{1, 3, 0.25, 0.05} {
+			bad, fell := falls(scaled(t))
+			if fell {
+				evaluated = -1
+				break
+			}
+			if !bad {
+				if evaluated++; evaluated == 2 {
+					break
+				}
+			}
+		}
+		if evaluated == 2 {
+			v := make([]float64, P)
+			for i := range v {
+				if free[i] {
+					v[i] = theta[i]
+				}
+			}
+			for d, ks := range ly.groups {
+				on := func(m int) float64 {
+					if eq[d][m] {
+						return 1
+					}
+					return 0
+				}
+				for _, k := range ks {
+					v[ly.slope[k]] = on(0) * theta[ly.slope[k]]
+				}
+				for m := 1; m < q; m++ {
+					v[ly.phiIndex[d][m]] = (on(m) - on(0)) * theta[ly.phiIndex[d][m]]
+				}
+			}
+			return scaledDir(v)
+		}
+	}
+
+	// Ray 2: the ridge of a group's widest effect.
+	wd, wm, wk, widest := -1, 0, 0, wide
+	for d, ks := range ly.groups {
+		for m := 0; m < q; m++ {
+			for _, k := range ks {
+				if v := quad(cov, effectGrad(d, m, k), P); v > 0 && math.Sqrt(v)*sd[k] > widest {
+					wd, wm, wk, widest = d, m, k, math.Sqrt(v)*sd[k]
+				}
+			}
+		}
+	}
+	if wd < 0 || 0.5*20*20/(widest*widest) < 16*tol {
+		return nil
+	}
+	grad := effectGrad(wd, wm, wk)
+	c := make([]float64, P) // the covariance column of the effect, in theta
+	for i := range c {
+		for j := range grad {
+			c[i] += cov[i*P+j] * grad[j]
+		}
+	}
+	// The same in the pieces: dB[d][k*q+m] for the groups, c itself for the rest.
+	most := 0.0
+	for i := range c {
+		most = math.Max(most, math.Abs(c[i])*unit[i])
+	}
+	dB := make([][]float64, len(ly.groups))
+	for d, ks := range ly.groups {
+		dB[d] = make([]float64, len(ks)*q)
+		for a, k := range ks {
+			gi := ly.slope[k]
+			for m := 0; m < q; m++ {
+				v := phis[d][m] * c[gi]
+				if pi := ly.phiIndex[d][m]; pi >= 0 {
+					v += theta[gi] * c[pi]
+				}
+				dB[d][a*q+m] = v
+				most = math.Max(most, math.Abs(v)*sd[k])
+			}
+		}
+	}
+	if !(most > 0) || math.IsInf(most, 0) {
+		return nil
+	}
+	along := func(s float64) []float64 {
+		x := slices.Clone(theta)
+		for i := range x {
+			if unit[i] > 0 {
+				x[i] += s * c[i]
+			}
+		}
+		for d, ks := range ly.groups {
+			// g from equation 1, phi_m by least squares on the moved effects.
+			gg := 0.0
+			for a, k := range ks {
+				gi := ly.slope[k]
+				x[gi] = theta[gi] + s*dB[d][a*q]
+				gg += x[gi] * x[gi]
+			}
+			if !(gg > 0) {
+				return nil
+			}
+			for m := 1; m < q; m++ {
+				num := 0.0
+				for a, k := range ks {
+					gi := ly.slope[k]
+					num += (phis[d][m]*theta[gi] + s*dB[d][a*q+m]) * x[gi]
+				}
+				x[ly.phiIndex[d][m]] = num / gg
+			}
+		}
+		return x
+	}
+	for _, sign := range []float64{1, -1} {
+		held := 0
+		for _, units := range []float64{5, 20} {
+			x := along(sign * units / most)
+			if x == nil {
+				break
+			}
+			if bad, fell := falls(x); bad || fell {
+				break
+			}
+			held++
+		}
+		if held == 2 {
+			return scaledDir(c)
+		}
+	}
+	return nil
+}
+
+// quad returns g' A g for a P x P matrix A.
+func quad(A, g []float64, P int) float64 {
+	s := 0.0
+	for i := range g {
+		if g[i] == 0 {
+			continue
+		}
+		for j := range g {
+			s += g[i] * A[i*P+j] * g[j]
+		}
+	}
+	return s
 }
 
 // scaledCondition returns the condition number of the matrix scaled to unit

@@ -411,6 +411,87 @@ func TestSeparationWithModerateEstimates(t *testing.T) {
 	}
 }
 
+// tinyData builds a data set of rows y, x, b, g, w (g one of "u", "v",
+// "w", coded g.v and g.w against u; w a frequency weight, nil for none).
+func tinyData(t *testing.T, J int, rows [][4]float64, g string, w []float64) *Data {
+	t.Helper()
+	if len(g) != len(rows) || (w != nil && len(w) != len(rows)) {
+		t.Fatalf("%d rows, %d groups, %d weights", len(rows), len(g), len(w))
+	}
+	d := &Data{J: J, Predictors: []string{"x", "b", "g.v", "g.w"}, Weights: w}
+	for i, r := range rows {
+		d.Y = append(d.Y, int(r[0])-1)
+		d.X = append(d.X, r[1], r[2], b2f(g[i] == 'v'), b2f(g[i] == 'w'))
+	}
+	return d
+}
+
+func b2f(b bool) float64 {
+	if b {
+		return 1
+	}
+	return 0
+}
+
+// Separation the checks before explodingDirection missed (seeded tiny
+// invented studies, each chosen by AIC in a plan run): moderate estimates
+// (no slope beyond 10 per SD), a well-conditioned or moderately
+// conditioned information, and no single covariance column along which
+// the log-likelihood holds.
+func TestSeparationExplodingPieces(t *testing.T) {
+	cases := []struct {
+		name  string
+		d     *Data
+		model Model
+	}{{
+		// The rows of TestSeparationWithModerateEstimates with frequency
+		// weights, b free across equations: category 1 is exactly the rows
+		// of level w (R glm, probit, of y = 2 against g.w on the rows with y
+		// in {1, 2}, weights w: fitted 2e-11 at every w row). The fit
+		// stopped with g.w -13, b[2] 15, errors 1.7e4 and 2.2e5, condition
+		// 49, and was reported converged.
+		name: "adjacent/partial/probit, weighted",
+		d: tinyData(t, 5, [][4]float64{{5, -0.52, 1}, {1, -1.32, 0}, {5, 2.31, 1}, {1, 0.21, 0}, {5, 0.13, 1}, {1, -1.01, 1},
+			{5, 1.63, 0}, {4, 0.24, 1}, {4, -0.47, 0}, {2, 0.33, 0}, {3, 0.05, 0}},
+			"uwuwuwuuvuu", []float64{2, 1, 1, 3, 3, 2, 1, 2, 1, 3, 3}),
+		model: Model{Comparison: Adjacent, Link: Probit, Effects: []Effect{Parallel, Nonparallel, Parallel, Parallel}},
+	}, {
+		// Category 2 never occurs at b = 1 while 1 and 3 do (R glm, logit,
+		// weights w: of y = 2 against b on the rows with y in {1, 2}, fitted
+		// 8.6e-9 at b = 1; of y = 3 on the rows with y in {2, 3}, fitted 1).
+		// b constrained (its slopes phi_m * b): b -19.3, phi[2] -0.98,
+		// error of b 2224 (815 units of the linear predictor), of its
+		// second equation's effect 4.6e4; reported converged and chosen.
+		name: "adjacent/constrained/logit, weighted",
+		d: tinyData(t, 4, [][4]float64{{2, -0.07, 0}, {3, 0.64, 0}, {4, -0.5, 0}, {1, -1.54, 1}, {3, 0.91, 0}, {2, 0.76, 0}, {4, -0.16, 0},
+			{3, -1.03, 1}, {4, -0.03, 1}, {2, -0.1, 0}, {4, 0.41, 0}, {1, -0.27, 0}, {4, 1.5, 0}},
+			"vvwuwvvvuuuvw", []float64{3, 3, 3, 1, 3, 1, 2, 1, 2, 3, 1, 1, 1}),
+		model: Model{Comparison: Adjacent, Link: Logit, Effects: []Effect{Parallel, Constrained, Parallel, Parallel}},
+	}, {
+		// Complete separation: the stage probit is a binary probit on
+		// the rows expanded by equation, and R glm (binomial probit, z ~ 0
+		// + eq + x + b:eq + g.v + g.w, b:eq being phi_m * b here with two
+		// equations) reaches log-likelihood -2e-10 with fitted values 0 and
+		// 1. Every error was near 1e6 to 3e7, the estimates scaled by 2 in
+		// theta (phi doubled with them) lowered the likelihood, and the fit
+		// was reported converged and chosen.
+		name: "stage/constrained/probit",
+		d: tinyData(t, 3, [][4]float64{{2, -0.1, 0}, {3, 0.76, 1}, {3, -0.17, 1}, {3, 2.02, 0}, {2, -0.02, 0}, {1, 0.14, 0},
+			{1, -2.51, 1}, {3, 1.73, 0}, {2, -1.32, 1}, {3, 1.51, 1}},
+			"wvvuuvwwww", nil),
+		model: Model{Comparison: Stage, Link: Probit, Effects: []Effect{Parallel, Constrained, Parallel, Parallel}},
+	}}
+	for _, c := range cases {
+		r, err := Fit(c.d, c.model, Options{Workers: 1})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if r.Status != StatusNoFiniteMaximum || r.Separation == nil {
+			t.Errorf("%s: status %s, log-likelihood %v, estimates %v, errors %v", c.name, r.Status, r.LogLik, r.Estimates, r.StdErrors)
+		}
+	}
+}
+
 // A fit stopped by the iteration limit says so in its status and message
 // and carries no log-likelihood.
 func TestRobustnessIterationLimit(t *testing.T) {
