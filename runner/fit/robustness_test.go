@@ -492,6 +492,33 @@ func TestSeparationExplodingPieces(t *testing.T) {
 	}
 }
 
+// A finite maximum that looks like separation is kept: a weighted
+// adjacent stereotype cloglog fit (a seeded tiny invented study) with
+// phi[4] near 958 and tau[4] near 864, errors 3295 and 2824, whose last
+// boundary is separated by b alone when taken by itself (R glm of y = 5
+// on the rows with y in {4, 5}: fitted 0 and 1), but not in the adjacent
+// model, where the rows of the other categories hold the fourth
+// equation. The log-likelihood evaluated by hand in R (P(m)/P(m+1) =
+// F/(1-F), F = 1 - exp(-exp(L_m)), L_m = tau_m - phi_m x'g) is -19.246462
+// at these estimates, BFGS from them does not move, and it falls both
+// ways along every direction tried (scaling tau[4] and phi[4] by 1.5:
+// -1386; the weakest direction of a finite-difference Hessian, steps
+// 1e-3 to 100): it is a maximum, and explodingDirection must not call it
+// separation.
+func TestExplodingButFiniteStaysOK(t *testing.T) {
+	d := tinyData(t, 5, [][4]float64{{2, 0.34, 0}, {3, -0.54, 0}, {3, 0.28, 0}, {2, -0.77, 0}, {5, -0.07, 1}, {1, -1.08, 1}, {5, 0.38, 1},
+		{5, -0.1, 1}, {4, -0.28, 0}, {3, 0.7, 1}, {3, 0.31, 1}, {1, -1.42, 0}, {4, 0.12, 0}, {2, -1.23, 1}, {2, -1.38, 1}},
+		"uwvuvwwvvuvvuwu", []float64{3, 1, 3, 2, 1, 2, 1, 1, 2, 2, 3, 3, 2, 1, 2})
+	m := Model{Comparison: Adjacent, Link: Cloglog, Effects: allEffects(4, Constrained)}
+	r, err := Fit(d, m, Options{Workers: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.Status != StatusOK || math.Abs(r.LogLik-(-19.246462)) > 1e-6 {
+		t.Errorf("status %s (%s), log-likelihood %v, want ok and -19.246462 (R, by hand)", r.Status, r.Message, r.LogLik)
+	}
+}
+
 // A fit stopped by the iteration limit says so in its status and message
 // and carries no log-likelihood.
 func TestRobustnessIterationLimit(t *testing.T) {
