@@ -3,7 +3,6 @@ package fit
 import (
 	"fmt"
 	"math"
-	"os"
 	"slices"
 	"sort"
 	"strings"
@@ -535,14 +534,6 @@ func flatDirection(loglik evalFunc, ly *layout, theta []float64, ll float64, inf
 	}
 	if !(most > 0) || math.IsInf(most, 0) {
 		return nil
-	}
-	if os.Getenv("SEPDEBUG") != "" {
-		for _, units := range []float64{1, 5, 20, 100, 300, 1000, 3000, 1e4, 1e5} {
-			for _, sign := range []float64{1, -1} {
-				a := loglik(addScaled(theta, d, sign*units/most), 0)
-				fmt.Fprintf(os.Stderr, "  flatray %d units %v sign %v bad %v dll %.6g\n", worst, units, sign, a.bad, a.ll-ll)
-			}
-		}
 	}
 	for _, units := range []float64{5, 20} {
 		for _, sign := range []float64{1, -1} {
