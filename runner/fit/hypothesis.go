@@ -110,8 +110,11 @@ func parseHypothesis(text string, P int, resolve func(string) (int, error), name
 	if len(h.R) == 0 {
 		return nil, fmt.Errorf("hypothesis %q is empty", text)
 	}
-	if P < 0 { // rows of one length
-		n := len(h.R[len(h.R)-1])
+	if P < 0 { // rows of one length: the longest, since a later row may name fewer parameters
+		n := 0
+		for _, row := range h.R {
+			n = max(n, len(row))
+		}
 		for i, row := range h.R {
 			h.R[i] = append(row, make([]float64, n-len(row))...)
 		}
