@@ -255,11 +255,14 @@ func (src *source) certify(r *Result, ly *layout, st newtonState, info []float64
 			return true, v
 		}
 	}
-	if v := flatDirection(src.loglik, ly, st.theta, st.ll, info, src.sd); v != nil {
-		return true, v
-	}
-	if v := explodingDirection(src.loglik, ly, st.theta, st.ll, info, src.sd); v != nil {
-		return true, v
+	// The two ridge checks read the covariance of the parameters.
+	if cov, err := invertSym(info, len(st.theta)); err == nil {
+		if v := flatDirection(src.loglik, ly, st.theta, st.ll, info, cov, src.sd); v != nil {
+			return true, v
+		}
+		if v := explodingDirection(src.loglik, ly, st.theta, st.ll, info, cov, src.sd); v != nil {
+			return true, v
+		}
 	}
 	return false, minVec
 }
@@ -476,16 +479,24 @@ func risingDirection(loglik evalFunc, theta []float64, ll float64, minVec, info 
 				continue
 			}
 			if a.ll >= ll-1e-9*math.Max(1, math.Abs(ll)) {
-				v := make([]float64, P)
-				for i := range v {
-					v[i] = dir[i] * math.Sqrt(math.Max(info[i*P+i], 0))
-				}
-				return v
+				return scaledDirection(dir, info)
 			}
 			break
 		}
 	}
 	return nil
+}
+
+// scaledDirection is direction d of the parameters in the scaled
+// coordinates certify reports directions in (each parameter times the
+// square root of its diagonal information).
+func scaledDirection(d, info []float64) []float64 {
+	P := len(d)
+	v := make([]float64, P)
+	for i := range v {
+		v[i] = d[i] * math.Sqrt(math.Max(info[i*P+i], 0))
+	}
+	return v
 }
 
 // flatDirection looks for quasi-complete separation whose estimates stay
@@ -501,13 +512,9 @@ func risingDirection(loglik evalFunc, theta []float64, ll float64, minVec, info 
 // leaves, 0.5 * 5^2 / 1e6 at the first step, far beyond the 1e-9
 // allowed; a separation does not fall. It returns the direction (scaled
 // coordinates) or nil.
-func flatDirection(loglik evalFunc, ly *layout, theta []float64, ll float64, info, sd []float64) []float64 {
+func flatDirection(loglik evalFunc, ly *layout, theta []float64, ll float64, info, cov, sd []float64) []float64 {
 	P := len(theta)
 	if len(ly.params) != P {
-		return nil
-	}
-	cov, err := invertSym(info, P)
-	if err != nil {
 		return nil
 	}
 	unit := make([]float64, P) // the linear predictor's change per unit of the parameter
@@ -539,11 +546,7 @@ func flatDirection(loglik evalFunc, ly *layout, theta []float64, ll float64, inf
 		for _, sign := range []float64{1, -1} {
 			a := loglik(addScaled(theta, d, sign*units/most), 0)
 			if !a.bad && a.ll >= ll-1e-9*math.Max(1, math.Abs(ll)) {
-				v := make([]float64, P)
-				for j := range v {
-					v[j] = d[j] * math.Sqrt(math.Max(info[j*P+j], 0))
-				}
-				return v
+				return scaledDirection(d, info)
 			}
 		}
 	}
@@ -574,13 +577,9 @@ func flatDirection(loglik evalFunc, ly *layout, theta []float64, ll float64, inf
 // 0.5 * (step / error)^2 of a piece moved by step, at the farther distance
 // at least 9 (ray 1) or 16 (ray 2) times the tolerance. It returns the
 // direction (scaled coordinates, the tangent at the start) or nil.
-func explodingDirection(loglik evalFunc, ly *layout, theta []float64, ll float64, info, sd []float64) []float64 {
+func explodingDirection(loglik evalFunc, ly *layout, theta []float64, ll float64, info, cov, sd []float64) []float64 {
 	P := len(theta)
 	if len(ly.params) != P {
-		return nil
-	}
-	cov, err := invertSym(info, P)
-	if err != nil {
 		return nil
 	}
 	const wide = 1e2
@@ -611,13 +610,6 @@ func explodingDirection(loglik evalFunc, ly *layout, theta []float64, ll float64
 	falls := func(x []float64) (bool, bool) {
 		a := loglik(x, 0)
 		return a.bad, !a.bad && a.ll < ll-tol
-	}
-	scaledDir := func(v []float64) []float64 {
-		out := make([]float64, P)
-		for i := range v {
-			out[i] = v[i] * math.Sqrt(math.Max(info[i*P+i], 0))
-		}
-		return out
 	}
 
 	// Ray 1: the exploding pieces scaled.
@@ -706,7 +698,7 @@ func explodingDirection(loglik evalFunc, ly *layout, theta []float64, ll float64
 					v[ly.phiIndex[d][m]] = (on(m) - on(0)) * theta[ly.phiIndex[d][m]]
 				}
 			}
-			return scaledDir(v)
+			return scaledDirection(v, info)
 		}
 	}
 
@@ -796,7 +788,7 @@ func explodingDirection(loglik evalFunc, ly *layout, theta []float64, ll float64
 			held++
 		}
 		if held == 2 {
-			return scaledDir(c)
+			return scaledDirection(c, info)
 		}
 	}
 	return nil
