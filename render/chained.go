@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/design"
@@ -81,7 +82,7 @@ func imputationMethods(im *runner.ImputedRun, dz *design.Design, c *citer) strin
 				cols = append(cols, o.Column)
 			}
 		}
-		models = append(models, fmt.Sprintf("%s for %s", w, joinAnd(cols)))
+		models = append(models, fmt.Sprintf("%s for %s", w, words.AndList(cols)))
 	}
 	fallback := ""
 	for _, n := range ch.Notes {
@@ -128,10 +129,10 @@ func termsImputationLacks(dz *design.Design) string {
 	}
 	var what []string
 	if len(inter) > 0 {
-		what = append(what, "the interaction"+plural(len(inter))+" "+joinAnd(inter))
+		what = append(what, "the interaction"+plural(len(inter))+" "+words.AndList(inter))
 	}
 	if len(curves) > 0 {
-		what = append(what, "the nonlinear term"+plural(len(curves))+" "+joinAnd(curves))
+		what = append(what, "the nonlinear term"+plural(len(curves))+" "+words.AndList(curves))
 	}
-	return joinAnd(what)
+	return words.AndList(what)
 }

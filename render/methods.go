@@ -6,6 +6,7 @@ import (
 	"slices"
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/plan/lock"
 	"ordplan/runner"
 	"ordplan/runner/fit"
@@ -142,7 +143,7 @@ func writeMethods(d *doc, r *runner.Result) {
 			fixed = "set out in an analysis plan"
 		}
 		s = append(s, fmt.Sprintf("The candidate models, %s (plan SHA-256 %s%s), crossed %s with %s, using the %s link%s.",
-			fixed, short(p.Hash), registeredAs(r), joinAnd(comps), joinAnd(effects), joinAnd(wordList(p.Models.Links)), plural(len(p.Models.Links))))
+			fixed, short(p.Hash), registeredAs(r), words.AndList(comps), words.AndList(effects), words.AndList(wordList(p.Models.Links)), plural(len(p.Models.Links))))
 		if sel := p.Models.Partial.Select; sel != nil {
 			s = append(s, fmt.Sprintf("The predictors allowed non-parallel effects were selected by backward stepwise imposition of parallel constraints with %s tests at alpha = %g %s.", sel.Test.Title(), sel.Alpha, c.cite("williams")))
 		}
@@ -167,14 +168,14 @@ func writeMethods(d *doc, r *runner.Result) {
 				}
 			}
 			if len(tests) > 0 {
-				s = append(s, fmt.Sprintf("The parallel-lines assumption was tested by %s tests (alpha = %g), overall and for each predictor.", joinAnd(tests), p.Tests.Alpha))
+				s = append(s, fmt.Sprintf("The parallel-lines assumption was tested by %s tests (alpha = %g), overall and for each predictor.", words.AndList(tests), p.Tests.Alpha))
 			}
 			if len(logitOnly) > 0 && !onlyCumulativeLogit(p.Models.Approaches, p.Models.Links) {
 				s = append(s, fmt.Sprintf("The %s %s defined for the cumulative logit model only and %s not computed for the other candidates.",
-					joinAnd(logitOnly), map[bool]string{true: "test is", false: "tests are"}[len(logitOnly) == 1], map[bool]string{true: "was", false: "were"}[len(logitOnly) == 1]))
+					words.AndList(logitOnly), map[bool]string{true: "test is", false: "tests are"}[len(logitOnly) == 1], map[bool]string{true: "was", false: "were"}[len(logitOnly) == 1]))
 			}
 			if len(barred) > 0 {
-				s = append(s, fmt.Sprintf("The %s tests of the parallel-lines assumption the plan asks for were not computed: with sampling weights the fits maximize a pseudo-likelihood, which gives them no chi-square reference.", joinAnd(barred)))
+				s = append(s, fmt.Sprintf("The %s tests of the parallel-lines assumption the plan asks for were not computed: with sampling weights the fits maximize a pseudo-likelihood, which gives them no chi-square reference.", words.AndList(barred)))
 			}
 		}
 		cov := r.Analysis.Errors.Covariance.Phrase()
@@ -267,17 +268,6 @@ func plural(n int) string {
 		return "s"
 	}
 	return ""
-}
-
-// joinAnd joins "a", "a and b", "a, b and c".
-func joinAnd(xs []string) string {
-	switch len(xs) {
-	case 0:
-		return ""
-	case 1:
-		return xs[0]
-	}
-	return strings.Join(xs[:len(xs)-1], ", ") + " and " + xs[len(xs)-1]
 }
 
 // writeReproducibility says exactly what produced the report.

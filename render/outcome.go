@@ -5,6 +5,7 @@ import (
 	"math"
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/fit"
@@ -210,7 +211,7 @@ func collinearNote(or *runner.OutcomeResult) string {
 		}
 		which := "model " + t.models[0]
 		if len(t.models) > 1 {
-			which = "models " + joinAnd(t.models)
+			which = "models " + words.AndList(t.models)
 		}
 		out[i] = fmt.Sprintf("the slopes of %s have variance inflation %s in %s", mdCode(term), factor, which)
 	}

@@ -3,6 +3,7 @@ package runner
 import (
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/runner/fit"
 )
 
@@ -37,15 +38,7 @@ func SamplingIgnoredTests() []string {
 func samplingIgnoredPhrase() string {
 	all := SamplingIgnoredTests()
 	lik, gof := all[:len(all)-len(goodnessOfFitTests)], all[len(all)-len(goodnessOfFitTests):]
-	return andList(lik) + " tests (likelihood-ratio ones also against the thresholds-only model) and the goodness-of-fit tests (" + strings.Join(gof, ", ") + ")"
-}
-
-// andList joins words with commas and a last "and".
-func andList(w []string) string {
-	if len(w) < 2 {
-		return strings.Join(w, "")
-	}
-	return strings.Join(w[:len(w)-1], ", ") + " and " + w[len(w)-1]
+	return words.AndList(lik) + " tests (likelihood-ratio ones also against the thresholds-only model) and the goodness-of-fit tests (" + strings.Join(gof, ", ") + ")"
 }
 
 // SamplingTestsText says which tests stand under sampling weights: the

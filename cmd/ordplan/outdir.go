@@ -14,6 +14,7 @@ import (
 	"strconv"
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/runner"
 )
 
@@ -297,7 +298,7 @@ func notPlainFiles(dir string, names []string) error {
 	}
 	sort.Strings(odd)
 	return fmt.Errorf("output folder %s: %s; ordplan writes its outputs as plain files and does not replace what it did not write: move %s away, or give another --out",
-		dir, joinNames(odd), map[bool]string{true: "it", false: "them"}[len(odd) == 1])
+		dir, words.AndList(odd), map[bool]string{true: "it", false: "them"}[len(odd) == 1])
 }
 
 // usersFilesError is the refusal to replace the user's files: O4 where
@@ -306,7 +307,7 @@ func notPlainFiles(dir string, names []string) error {
 // ordplan's outputs made before it kept the record (ordplan power's were)
 // or the user's own.
 func usersFilesError(dir string, mine []string) error {
-	names := joinNames(mine)
+	names := words.AndList(mine)
 	// The words that follow the number of files: one, or several.
 	w := struct{ is, they, them, file, output, old string }{"is", "it", "it", "your own file", "an output", "an old output"}
 	if len(mine) > 1 {
@@ -438,12 +439,4 @@ func usersFiles(dir string, names []string, files map[string][]byte) []string {
 func sha256Hex(b []byte) string {
 	sum := sha256.Sum256(b)
 	return hex.EncodeToString(sum[:])
-}
-
-// joinNames writes file names for a message: "a", "a and b", "a, b and c".
-func joinNames(names []string) string {
-	if len(names) == 1 {
-		return names[0]
-	}
-	return strings.Join(names[:len(names)-1], ", ") + " and " + names[len(names)-1]
 }

@@ -75,6 +75,18 @@ func Unknown(what, w string, names []string) string {
 	return msg
 }
 
+// AndList renders ["a", "b", "c"] as "a, b and c" ("a and b", "a"; "" for
+// none): the one way the program lists names in a sentence.
+func AndList(words []string) string {
+	switch len(words) {
+	case 0:
+		return ""
+	case 1:
+		return words[0]
+	}
+	return strings.Join(words[:len(words)-1], ", ") + " and " + words[len(words)-1]
+}
+
 // OrList renders ["a", "b", "c"] as "a, b or c".
 func OrList(words []string) string {
 	switch len(words) {

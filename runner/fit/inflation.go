@@ -6,6 +6,8 @@ import (
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
+
+	"ordplan/internal/words"
 )
 
 // InflationLimit is the variance inflation of a term's slopes at which a
@@ -176,7 +178,7 @@ func (r *Result) CollinearNote(name func(string) string) string {
 		}
 	}
 	return fmt.Sprintf("near-collinearity: the slopes of %s have variance inflation %s; %s",
-		joinNames(names), strings.Join(parts, ", "), CollinearMeaning)
+		words.AndList(names), strings.Join(parts, ", "), CollinearMeaning)
 }
 
 // CollinearMeaning says what a variance inflation at or above
@@ -193,16 +195,5 @@ func setList(sets []int) string {
 	if len(s) == 1 {
 		return "imputed set " + s[0]
 	}
-	return "imputed sets " + joinNames(s)
-}
-
-// joinNames joins names as "a", "a and b", "a, b and c".
-func joinNames(names []string) string {
-	switch len(names) {
-	case 0:
-		return ""
-	case 1:
-		return names[0]
-	}
-	return strings.Join(names[:len(names)-1], ", ") + " and " + names[len(names)-1]
+	return "imputed sets " + words.AndList(s)
 }
