@@ -1,6 +1,7 @@
 package render
 
 import (
+	"bufio"
 	"bytes"
 	"fmt"
 	"html"
@@ -9,12 +10,16 @@ import (
 	"github.com/yuin/goldmark"
 	"github.com/yuin/goldmark/ast"
 	"github.com/yuin/goldmark/extension"
+	extast "github.com/yuin/goldmark/extension/ast"
 	"github.com/yuin/goldmark/parser"
+	"github.com/yuin/goldmark/renderer"
+	gmhtml "github.com/yuin/goldmark/renderer/html"
+	"github.com/yuin/goldmark/util"
 )
 
 const css = `body{font-family:system-ui,-apple-system,"Segoe UI",sans-serif;max-width:1100px;margin:2em auto;padding:0 1em;color:#1b1b1b;line-height:1.45;overflow-wrap:break-word}
 table{border-collapse:collapse;margin:0.6em 0 1.2em;font-size:0.9em}th,td{border:1px solid #ccc;padding:0.25em 0.6em;text-align:left;vertical-align:top}
-th{background:#f2f2f2;white-space:nowrap}td{white-space:nowrap}td[style*="right"],th[style*="right"]{font-variant-numeric:tabular-nums}td:not([style*="right"]){white-space:normal;min-width:11em;max-width:38em;overflow-wrap:anywhere}
+th{background:#f2f2f2;white-space:nowrap}td{white-space:nowrap}td[style*="right"],th[style*="right"]{font-variant-numeric:tabular-nums}td:not([style*="right"]){white-space:normal;min-width:8em;max-width:38em;overflow-wrap:break-word}
 .table-wrap{overflow-x:auto;max-width:100%;margin:0.6em 0 1.2em}.table-wrap table{margin:0}
 nav.toc ul{margin:0.2em 0}tr:nth-child(even) td{background:#fafafa}code{background:#f4f4f4;padding:0 0.2em}h2{border-bottom:2px solid #ddd;padding-bottom:0.2em;margin-top:2em}
 .chart-group{display:flex;flex-wrap:wrap;gap:1em;margin:1em 0 1.5em}.chart-figure{flex:1 1 480px;margin:0;border:1px solid #e3e3e3;padding:0.5em;min-width:0}
@@ -46,7 +51,8 @@ document.addEventListener("click",function(ev){var b=ev.target.closest?ev.target
 // and the chart options inline.
 func (d *doc) html(title string) ([]byte, error) {
 	d.flush()
-	conv := goldmark.New(goldmark.WithExtensions(extension.Table), goldmark.WithParserOptions(parser.WithAutoHeadingID()))
+	conv := goldmark.New(goldmark.WithExtensions(extension.Table), goldmark.WithParserOptions(parser.WithAutoHeadingID()),
+		goldmark.WithRendererOptions(renderer.WithNodeRenderers(util.Prioritized(newCellText(), 100))))
 	var out bytes.Buffer
 	ids := &headingIDs{heads: d.heads}
 	convert := func(md string) error {
@@ -116,3 +122,121 @@ func (h *headingIDs) Generate(value []byte, kind ast.NodeKind) []byte {
 }
 
 func (h *headingIDs) Put(value []byte) {}
+
+// cellText renders text and code spans as goldmark does, and inside a
+// table cell also marks where a long name may break: a cell narrower than
+// a name such as `years_lived_at_address.through_road` then breaks it
+// after "_", ".", "&", "/" or before a capital in a camel-case word,
+// never inside a word of letters (the style sheet lets the browser break
+// elsewhere only when one piece alone is wider than the cell's limit).
+type cellText struct {
+	plain map[ast.NodeKind]renderer.NodeRendererFunc
+}
+
+func newCellText() *cellText {
+	c := &cellText{plain: map[ast.NodeKind]renderer.NodeRendererFunc{}}
+	gmhtml.NewRenderer().RegisterFuncs(c)
+	return c
+}
+
+// Register keeps goldmark's own functions, which cellText wraps.
+func (c *cellText) Register(kind ast.NodeKind, f renderer.NodeRendererFunc) { c.plain[kind] = f }
+
+func (c *cellText) RegisterFuncs(reg renderer.NodeRendererFuncRegisterer) {
+	for _, kind := range []ast.NodeKind{ast.KindText, ast.KindCodeSpan} {
+		plain := c.plain[kind]
+		reg.Register(kind, func(w util.BufWriter, source []byte, n ast.Node, entering bool) (ast.WalkStatus, error) {
+			if !inTableCell(n) {
+				return plain(w, source, n, entering)
+			}
+			var buf bytes.Buffer
+			bw := bufio.NewWriter(&buf)
+			st, err := plain(bw, source, n, entering)
+			if err == nil {
+				err = bw.Flush()
+			}
+			if err != nil {
+				return st, err
+			}
+			_, err = w.WriteString(nameBreaks(buf.String(), followingByte(n, source)))
+			return st, err
+		})
+	}
+}
+
+// followingByte is the first byte of the text after n in its cell (0 if
+// none): goldmark splits "a_b" into the texts "a", "_" and "b".
+func followingByte(n ast.Node, source []byte) byte {
+	next := n.NextSibling()
+	if t, ok := next.(*ast.Text); ok {
+		if v := t.Segment.Value(source); len(v) > 0 {
+			return v[0]
+		}
+	}
+	return 0
+}
+
+func inTableCell(n ast.Node) bool {
+	for p := n.Parent(); p != nil; p = p.Parent() {
+		if p.Kind() == extast.KindTableCell {
+			return true
+		}
+	}
+	return false
+}
+
+// nameBreaks inserts <wbr> into rendered HTML text (tags and character
+// references left whole) after "_", "&amp;" and "/" and after a "." between
+// a letter or digit and a letter, each only when more of the word follows,
+// and between a lower-case and an upper-case letter. follow is the byte
+// after h in the cell's text (0 if none).
+func nameBreaks(h string, follow byte) string {
+	if !strings.ContainsAny(h, "_&./") && h == strings.ToLower(h) {
+		return h
+	}
+	var b strings.Builder
+	b.Grow(len(h) + 16)
+	isLetter := func(c byte) bool { return c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' }
+	isWord := func(c byte) bool { return isLetter(c) || c >= '0' && c <= '9' || c >= 0x80 }
+	for i := 0; i < len(h); {
+		c := h[i]
+		if c == '<' {
+			j := strings.IndexByte(h[i:], '>')
+			if j < 0 {
+				b.WriteString(h[i:])
+				break
+			}
+			b.WriteString(h[i : i+j+1])
+			i += j + 1
+			continue
+		}
+		if c == '&' {
+			j := strings.IndexByte(h[i:], ';')
+			if j < 0 {
+				j = 0
+			}
+			ref := h[i : i+j+1]
+			b.WriteString(ref)
+			i += j + 1
+			if ref == "&amp;" && (i < len(h) && isWord(h[i]) || i == len(h) && isWord(follow)) {
+				b.WriteString("<wbr>")
+			}
+			continue
+		}
+		b.WriteByte(c)
+		i++
+		next := follow
+		if i < len(h) {
+			next = h[i]
+		}
+		switch {
+		case (c == '_' || c == '/') && isWord(next):
+			b.WriteString("<wbr>")
+		case c == '.' && i >= 2 && isWord(h[i-2]) && isLetter(next):
+			b.WriteString("<wbr>")
+		case c >= 'a' && c <= 'z' && next >= 'A' && next <= 'Z':
+			b.WriteString("<wbr>")
+		}
+	}
+	return b.String()
+}

@@ -1,0 +1,38 @@
+package render
+
+import (
+	"strings"
+	"testing"
+)
+
+// TestNameBreaks: long names in table cells may break after "_", ".",
+// "&" and "/" and at camel-case joins, never inside a word, a number or a
+// character reference, and text outside tables is left as goldmark writes
+// it. The expected HTML is written out by hand.
+func TestNameBreaks(t *testing.T) {
+	d := &doc{}
+	d.b.WriteString("Prose keeps long_names_whole and a.b as they are.\n\n")
+	d.b.WriteString("| Term | Estimate |\n|---|---:|\n")
+	d.b.WriteString("| years_lived.through_road | 0.2045 |\n")
+	d.b.WriteString("| " + mdCode("pilot&street_type") + " | -1.5e-07 |\n")
+	d.b.WriteString("| cumulative/constrained/logit | 12.5% |\n")
+	d.b.WriteString("| yearsLived &amp; x | 3 |\n")
+	got, err := d.html("t")
+	if err != nil {
+		t.Fatal(err)
+	}
+	h := string(got)
+	for _, want := range []string{
+		"<p>Prose keeps long_names_whole and a.b as they are.</p>",
+		"<td>years_<wbr>lived.<wbr>through_<wbr>road</td>",
+		"<td style=\"text-align:right\">0.2045</td>",
+		"<td><code>pilot&amp;<wbr>street_<wbr>type</code></td>",
+		"<td style=\"text-align:right\">-1.5e-07</td>",
+		"<td>cumulative/<wbr>constrained/<wbr>logit</td>",
+		"<td>years<wbr>Lived &amp; x</td>",
+	} {
+		if !strings.Contains(h, want) {
+			t.Errorf("report.html lacks %q", want)
+		}
+	}
+}
