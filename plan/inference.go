@@ -1,6 +1,7 @@
 package plan
 
 import (
+	"math"
 	"path/filepath"
 	"slices"
 	"strings"
@@ -54,6 +55,10 @@ type ProfileValue struct {
 	Predictor string  // a column the terms read
 	Value     float64 // numeric columns
 	Level     string  // categorical columns: the level
+	// written is the text of a value the plan writes as a number or a
+	// boolean: the level, when the column is categorical (grade: 2 names
+	// the level "2", as levels: [1, 2, 3] lists it).
+	written string
 }
 
 var (
@@ -107,10 +112,20 @@ func (d *decoder) decodeInference(n *yaml.Node, inf *Inference, dir string) {
 					continue
 				}
 				seen[k.Value] = true
-				if dv := deref(d.record(path, val)); dv != nil && dv.Kind == yaml.ScalarNode && dv.ShortTag() == "!!str" {
+				dv := deref(d.record(path, val))
+				switch {
+				case dv != nil && dv.Kind == yaml.ScalarNode && (dv.ShortTag() == "!!str" || dv.ShortTag() == "!!bool"):
 					inf.Profile = append(inf.Profile, ProfileValue{Predictor: k.Value, Level: dv.Value})
-				} else if x, ok := d.number(dv, path); ok {
-					inf.Profile = append(inf.Profile, ProfileValue{Predictor: k.Value, Value: x})
+				case dv != nil && dv.Kind == yaml.ScalarNode && (dv.ShortTag() == "!!int" || dv.ShortTag() == "!!float"):
+					// A number, or the level of a categorical column written
+					// as one: which, checkInference says.
+					var x float64
+					if dv.Decode(&x) != nil || math.IsInf(x, 0) {
+						x = math.NaN() // not a finite number: checkInference says so
+					}
+					inf.Profile = append(inf.Profile, ProfileValue{Predictor: k.Value, Value: x, written: dv.Value})
+				default:
+					d.number(dv, path) // says what was given instead
 				}
 			}
 		}
@@ -129,16 +144,31 @@ func (d *decoder) decodeInference(n *yaml.Node, inf *Inference, dir string) {
 // checkInference checks the section against the predictors.
 func (d *decoder) checkInference(p *Plan) {
 	inf := &p.Inference
-	for _, a := range inf.Profile {
+	for i := range inf.Profile {
+		a := &inf.Profile[i]
 		key := childPath("inference.profile", a.Predictor)
 		c := p.categorical(a.Predictor)
+		if c != nil && a.written != "" {
+			a.Level, a.Value = a.written, 0
+		}
 		switch {
 		case !slices.Contains(p.SourceColumns(), a.Predictor) && d.clean("predictors"):
 			d.errAt(key, "%s is not a column the predictors read (%s)", quote(a.Predictor), strings.Join(p.SourceColumns(), ", "))
 		case c != nil && !slices.Contains(c.Levels, a.Level):
 			d.errAt(key, "%s is not a level of %s, which is categorical: give one of its levels (%s)", quote(a.Level), quote(a.Predictor), strings.Join(c.Levels, ", "))
+		case c != nil && d.clean("subset") && excludedBy(p, a.Predictor, a.Level) != nil:
+			sc := excludedBy(p, a.Predictor, a.Level)
+			var kept []string
+			for _, l := range c.Levels {
+				if excludedBy(p, a.Predictor, l) == nil {
+					kept = append(kept, l)
+				}
+			}
+			d.errAt(key, "%s is a level the subset leaves out (%s: %s): no row used has it, so the fitted model has no effect of it; give a level the rows used have (%s)", quote(a.Level), sc.Key, sc.String(), strings.Join(kept, ", "))
 		case c == nil && a.Level != "":
 			d.errAt(key, "%s is numeric: give a number, got %s", quote(a.Predictor), quote(a.Level))
+		case c == nil && math.IsNaN(a.Value):
+			d.errAt(key, "want a finite number, got %s", quote(a.written))
 		}
 	}
 	hasProfile := slices.Contains(inf.MarginalEffects, "profile")

@@ -32,7 +32,7 @@ rules:
 report: {panels_by: treat}
 inference:
   marginal_effects: [profile]
-  profile: {site: south, age: 50}
+  profile: {site: north, age: 50}
 `
 
 // A plan with every kind of term, a subset and an outcome's own predictor
@@ -58,7 +58,7 @@ func TestTermsDecodeAndCanonical(t *testing.T) {
 	if o := p.Outcomes[1]; strings.Join(o.Predictors, " ") != "treat dose.sqrt" {
 		t.Errorf("own predictors %v", o.Predictors)
 	}
-	if a := p.Inference.Profile; len(a) != 2 || a[0].Level != "south" || a[1].Value != 50 {
+	if a := p.Inference.Profile; len(a) != 2 || a[0].Level != "north" || a[1].Value != 50 {
 		t.Errorf("at %+v", a)
 	}
 	q, err := Parse(p.Canonical(), "p.yaml")
@@ -131,9 +131,55 @@ func TestColumnWhereTermWanted(t *testing.T) {
 	if err == nil || !strings.Contains(err.Error(), want) {
 		t.Errorf("got %v, want %s", err, want)
 	}
-	src = strings.Replace(termsPlanSrc, "profile: {site: south", "profile: {site: South", 1)
+	src = strings.Replace(termsPlanSrc, "profile: {site: north", "profile: {site: South", 1)
 	_, err = Parse([]byte(src), "p.yaml")
 	want = `inference.profile.site: "South" is not a level of "site", which is categorical: give one of its levels (north, east, south)`
+	if err == nil || !strings.Contains(err.Error(), want) {
+		t.Errorf("got %v, want %s", err, want)
+	}
+}
+
+// A profile names the level of a categorical column as the plan writes
+// its levels: a level written as a number (grade: 2, levels ["1", "2",
+// "3"]) is that level, as it is in categorical.grade.levels, not a number
+// refused as an empty level; its canonical form is the level's text.
+func TestProfileLevelWrittenAsNumber(t *testing.T) {
+	for _, v := range []string{"2", `"2"`} {
+		src := strings.Replace(termsPlanSrc, "profile: {site: north, age: 50}", "profile: {grade: "+v+", age: 50}", 1)
+		p, err := Parse([]byte(src), "p.yaml")
+		if err != nil {
+			t.Fatalf("grade: %s: %v", v, err)
+		}
+		got := p.Inference.Profile[0]
+		if got.Predictor != "grade" || got.Level != "2" {
+			t.Errorf("grade: %s: profile %+v, want the level \"2\"", v, got)
+		}
+		c := p.canonical().Inference.Profile["grade"]
+		if c != "2" {
+			t.Errorf("grade: %s: canonical profile value %#v, want \"2\"", v, c)
+		}
+	}
+	src := strings.Replace(termsPlanSrc, "profile: {site: north, age: 50}", "profile: {grade: 4}", 1)
+	_, err := Parse([]byte(src), "p.yaml")
+	want := `inference.profile.grade: "4" is not a level of "grade", which is categorical: give one of its levels (1, 2, 3)`
+	if err == nil || !strings.Contains(err.Error(), want) {
+		t.Errorf("got %v, want %s", err, want)
+	}
+	src = strings.Replace(termsPlanSrc, "profile: {site: north, age: 50}", "profile: {age: true}", 1)
+	_, err = Parse([]byte(src), "p.yaml")
+	want = `inference.profile.age: "age" is numeric: give a number, got "true"`
+	if err == nil || !strings.Contains(err.Error(), want) {
+		t.Errorf("got %v, want %s", err, want)
+	}
+}
+
+// A profile at a level that the subset leaves out (its column dropped,
+// unobserved: drop) is refused at the profile: no row used has the level,
+// so the model has no effect of it to evaluate.
+func TestProfileLevelLeftOutBySubset(t *testing.T) {
+	src := strings.Replace(termsPlanSrc, "profile: {site: north", "profile: {site: south", 1)
+	_, err := Parse([]byte(src), "p.yaml")
+	want := `inference.profile.site: "south" is a level the subset leaves out (subset[1]: site in {north, east}): no row used has it, so the fitted model has no effect of it; give a level the rows used have (north, east)`
 	if err == nil || !strings.Contains(err.Error(), want) {
 		t.Errorf("got %v, want %s", err, want)
 	}

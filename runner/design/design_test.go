@@ -255,6 +255,12 @@ func TestBuildErrors(t *testing.T) {
 	if err != nil || len(d.Columns) != 1 || len(d.Notes) != 1 {
 		t.Errorf("dropped level: %v %v %v", err, d.Columns, d.Notes)
 	}
+	// A row at the dropped level (a new row to predict, a profile) has no
+	// design row: the message says why, not merely that it is not coded.
+	err = d.Row([]float64{2}, make([]float64, 1))
+	if want := `column "f": level "c" occurs in no row the model was fitted to (its column was dropped: unobserved: drop), so the model has no effect of it`; err == nil || err.Error() != want {
+		t.Errorf("a row at the dropped level: %v, want %s", err, want)
+	}
 	_, err = Build(Spec{Sources: num, Terms: []TermSpec{{Name: "x", Source: "x"}, {Name: "i", Interact: []string{"x", "z"}, Key: "predictors[2]"}}}, []float64{1, 2}, 2, nil, nil)
 	if err == nil || !strings.Contains(err.Error(), `"z" is not a term listed before this interaction`) {
 		t.Errorf("interaction with an unknown term: %v", err)

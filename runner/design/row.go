@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"slices"
 	"sync"
 )
 
@@ -37,7 +38,11 @@ func (d *Design) row(raw, out []float64, s int, der []float64) error {
 			x := raw[t.Source]
 			code, ok := t.code[int(x)]
 			if !ok || x != math.Trunc(x) {
-				return fmt.Errorf("column %q: level %v is not one of the coded levels", d.Sources[t.Source].Name, levelText(d.Sources[t.Source], x))
+				src := d.Sources[t.Source]
+				if i := int(x); float64(i) == x && i >= 0 && i < len(src.Cat.Levels) && slices.Contains(t.Dropped, src.Cat.Levels[i]) {
+					return fmt.Errorf("column %q: level %q occurs in no row the model was fitted to (its column was dropped: unobserved: drop), so the model has no effect of it", src.Name, src.Cat.Levels[i])
+				}
+				return fmt.Errorf("column %q: level %v is not one of the coded levels", src.Name, levelText(src, x))
 			}
 			copy(o, code)
 			for i := range dd {
