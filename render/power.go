@@ -40,8 +40,9 @@ func PowerOutputs(pr *simulate.PowerResult, reg *lock.Status) (map[string][]byte
 	for i, n := range pr.Sizes {
 		sizes[i] = fmt.Sprint(n)
 	}
-	d.p("**%s.** No real observation was used: `ordplan power` drew %d data sets at each sample size (%s) from the plan's `assumptions` and data dictionary (seed %d, %s model generating each outcome) and ran the plan's whole decision procedure on each: the grid of fits, the tests, the rules in order and the plan's hypotheses in the chosen model (Wald tests at alpha %g). Written by ordplan %s from the plan %s (sha256 `%s`)%s.",
-		SimulatedMark, pr.Replicates, strings.Join(sizes, ", "), pr.Seed, pr.Generator, pr.Alpha, pr.Version, mdCode(pr.PlanFile), pr.PlanSHA256, registeredText(reg))
+	d.p("**%s.** No real observation was used: `ordplan power` drew %d data sets at each sample size (%s) from the plan's `assumptions` and data dictionary (seed %d, %s model generating each outcome) and ran the plan's whole decision procedure on each: the grid of fits, the tests, the rules in order and the plan's hypotheses in the chosen model (Wald tests at alpha %g).%s Written by ordplan %s from the plan %s (sha256 `%s`).",
+		SimulatedMark, pr.Replicates, strings.Join(sizes, ", "), pr.Seed, pr.Generator, pr.Alpha, powerTests(pr), pr.Version, mdCode(pr.PlanFile), pr.PlanSHA256)
+	writeLockStatus(d, reg, pr.Version, powerLockWords)
 	d.p("Every rate is a share of the %d replicates of a size, with its Monte Carlo standard error sqrt(p(1-p)/R) in brackets.", pr.Replicates)
 	for _, op := range pr.Outcomes {
 		d.h(2, "Outcome "+mdCode(op.Outcome))
@@ -64,6 +65,17 @@ func PowerOutputs(pr *simulate.PowerResult, reg *lock.Status) (map[string][]byte
 		return nil, err
 	}
 	return map[string][]byte{powerMarkdown: d.markdown(), powerHTML: page, powerJSON: js}, nil
+}
+
+// powerTests says when a replicate counts a hypothesis as rejected: its
+// Wald test's p-value, adjusted for multiplicity as the plan's run adjusts
+// it, below alpha ("" after the opening's "Wald tests at alpha" when the
+// plan adjusts nothing).
+func powerTests(pr *simulate.PowerResult) string {
+	if pr.Multiplicity == "" {
+		return ""
+	}
+	return fmt.Sprintf(" As in the plan's run (inference.multiplicity: %s), a hypothesis counts as rejected when its p-value adjusted by %s over every hypothesis of every outcome, each in its chosen model, is below alpha.", pr.Multiplicity, runner.MultiplicityName(pr.Multiplicity))
 }
 
 func fmtRate(r simulate.Rate) string {

@@ -7,12 +7,46 @@ import (
 	"ordplan/runner"
 )
 
+// lockWords are the sentences of the registration paragraph that depend
+// on what the report is of: a run of the plan on data (run, rehearse) or a
+// power study, which simulates the plan and whose numbers belong to the
+// plan it simulated.
+type lockWords struct {
+	none    string // after "No lock file (X) lies beside the plan, "
+	matches string // after "Registered plan: matches (lock)."
+	forced  string // after "... the X was forced with --allow-unregistered-changes."
+	departs string // "This run departs from it": the plan the report is of
+	what    string // "run": what was forced
+}
+
+var (
+	runLockWords = lockWords{
+		none:    "so nothing shows when this plan was fixed; `ordplan freeze` writes one before the data are seen.",
+		matches: "The plan run here is the frozen plan, key for key.",
+		forced:  "Results that depend on these changes were not fixed before the data were seen.",
+		departs: "This run departs from it",
+		what:    "run",
+	}
+	powerLockWords = lockWords{
+		none:    "so nothing ties these numbers to a registered analysis but the plan's SHA-256 above; `ordplan freeze` fixes the plan, with the sample size chosen, before the data are seen.",
+		matches: "The plan simulated here is the frozen plan, key for key: the power and model choice below are those of the registered analysis.",
+		forced:  "The power and model choice below are those of a plan that differs from the registered one in these keys.",
+		departs: "The plan simulated here, whose power and model choice are below, departs from it",
+		what:    "study",
+	}
+)
+
 // writeRegistration opens the report with the plan compared with its lock:
 // "Registered plan: matches", or the Deviations section (key, frozen value,
 // value of this run, stated reason). Unexplained changes let through by
 // the command line are announced in the first lines.
 func writeRegistration(d *doc, r *runner.Result) {
-	st := r.Registration
+	writeLockStatus(d, r.Registration, r.Version, runLockWords)
+}
+
+// writeLockStatus writes the plan compared with its lock (st nil: not
+// compared) in the words of the kind of report; version is the program's.
+func writeLockStatus(d *doc, st *lock.Status, version string, w lockWords) {
 	if st == nil {
 		return
 	}
@@ -26,21 +60,21 @@ func writeRegistration(d *doc, r *runner.Result) {
 	}
 	switch st.State {
 	case lock.StateNone:
-		d.p("**Registered plan: none.** No lock file (%s) lies beside the plan, so nothing shows when this plan was fixed; `ordplan freeze` writes one before the data are seen.", mdCode(st.LockFile))
+		d.p("**Registered plan: none.** No lock file (%s) lies beside the plan, %s", mdCode(st.LockFile), w.none)
 		if len(st.Unused) > 0 {
 			d.p("The plan lists %d deviation(s), but without a lock there is no registered plan to compare with.", len(st.Unused))
 		}
 		return
 	case lock.StateMatches:
-		d.p("**Registered plan: matches** (%s). The plan run here is the frozen plan, key for key.", frozen())
+		d.p("**Registered plan: matches** (%s). %s", frozen(), w.matches)
 		writeUnusedDeviations(d, st)
 		return
 	case lock.StateUnexplained:
-		d.p("**UNREGISTERED CHANGES: %d of the %d change(s) from the registered plan have no reason in the plan's `deviations` list; the run was forced with `--allow-unregistered-changes`.** Results that depend on these changes were not fixed before the data were seen.",
-			st.Unexplained(), len(st.Changes))
+		d.p("**UNREGISTERED CHANGES: %d of the %d change(s) from the registered plan have no reason in the plan's `deviations` list; the %s was forced with `--allow-unregistered-changes`.** %s",
+			st.Unexplained(), len(st.Changes), w.what, w.forced)
 	}
 	d.h(2, "Deviations from the registered plan")
-	d.p("The registered plan is %s. This run departs from it in %d key(s) of the canonical form:", frozen(), len(st.Changes))
+	d.p("The registered plan is %s. %s in %d key(s) of the canonical form:", frozen(), w.departs, len(st.Changes))
 	rows := make([][]string, 0, len(st.Changes))
 	for _, c := range st.Changes {
 		reason := c.Reason
@@ -49,9 +83,9 @@ func writeRegistration(d *doc, r *runner.Result) {
 		}
 		rows = append(rows, []string{md(mdCode(c.Path)), md(codeCell(c.From)), md(codeCell(c.To)), reason})
 	}
-	d.table([]string{"Key", "Registered", "This run", "Stated reason"}, rows)
-	if f.Version != r.Version {
-		d.p("The lock was written by ordplan %s and this is ordplan %s: a key that the newer program adds to the canonical form shows as a change from (absent) although the plan file did not change.", f.Version, r.Version)
+	d.table([]string{"Key", "Registered", "This " + w.what, "Stated reason"}, rows)
+	if f.Version != version {
+		d.p("The lock was written by ordplan %s and this is ordplan %s: a key that the newer program adds to the canonical form shows as a change from (absent) although the plan file did not change.", f.Version, version)
 	}
 	writeUnusedDeviations(d, st)
 }

@@ -44,6 +44,16 @@ func BHAdjust(p []float64) []float64 {
 	return out
 }
 
+// MultiplicityName names a correction of inference.multiplicity in
+// prose, with what it controls: the run's note and the power study's
+// opening say it.
+func MultiplicityName(method string) string {
+	if method == plan.MultiplicityBH {
+		return "the Benjamini-Hochberg step-up correction (false discovery rate)"
+	}
+	return "Holm's step-down correction (family-wise error rate)"
+}
+
 // sortedIndex orders the indices by p, ties in the order given.
 func sortedIndex(p []float64) []int {
 	idx := make([]int, len(p))
@@ -88,9 +98,9 @@ func adjustHypotheses(an *Analysis, res *Result) {
 		}
 	}
 	var adj []float64
-	name := "Holm's step-down correction (family-wise error rate)"
+	name := MultiplicityName(method)
 	if method == plan.MultiplicityBH {
-		adj, name = BHAdjust(ps), "the Benjamini-Hochberg step-up correction (false discovery rate)"
+		adj = BHAdjust(ps)
 	} else {
 		adj = HolmAdjust(ps)
 	}

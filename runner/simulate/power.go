@@ -105,9 +105,14 @@ type PowerResult struct {
 	Generator  string `json:"generating_model"` // comparison (direction) and link, e.g. "cumulative logit"
 	// Correlations stated between predictor columns ("a, b: r = 0.3"); the
 	// other columns are drawn independently.
-	Correlations []string       `json:"correlations,omitempty"`
-	Replicates   int            `json:"replicates"`
-	Alpha        float64        `json:"alpha"`
+	Correlations []string `json:"correlations,omitempty"`
+	Replicates   int      `json:"replicates"`
+	Alpha        float64  `json:"alpha"`
+	// Multiplicity is the plan's correction of its hypotheses' p-values
+	// (inference.multiplicity: holm or benjamini_hochberg; "" for none):
+	// a hypothesis is rejected when its adjusted p-value is below Alpha,
+	// as the plan's run decides.
+	Multiplicity string         `json:"multiplicity,omitempty"`
 	Sizes        []int          `json:"sizes"`
 	Outcomes     []OutcomePower `json:"outcomes"`
 	Version      string         `json:"version"`
@@ -152,6 +157,9 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 	defer os.RemoveAll(tmp)
 	res := &PowerResult{Simulated: true, PlanFile: filepath.Base(p.Path), PlanSHA256: p.Hash, Title: p.Title, Seed: p.Seed, Link: sim.Link.String(), Generator: sim.GeneratingModel(),
 		Replicates: opt.Replicates, Alpha: opt.Alpha, Sizes: opt.Sizes, Version: runner.Version}
+	if m := p.Inference.Multiplicity; m != "" && m != plan.MultiplicityNone && len(p.Inference.Hypotheses) > 0 {
+		res.Multiplicity = m
+	}
 	for _, c := range p.Assumptions.Correlations {
 		res.Correlations = append(res.Correlations, fmt.Sprintf("%s, %s: r = %g", c.A, c.B, c.R))
 	}
@@ -236,7 +244,13 @@ func runReplicate(p *plan.Plan, sim *Sim, n, r int, path string, opt PowerOption
 			for _, hr := range or.Hypotheses {
 				if hr.Line == h.Line && hr.Text == h.Text && ro.chosen != "" && hr.Model == ro.chosen && hr.Test.OK {
 					ro.rejected[hi] = 0
-					if hr.Test.P < alpha {
+					// The run's decision: the adjusted p-value when the
+					// plan corrects for multiplicity.
+					pv := hr.Test.P
+					if hr.Adjusted != nil {
+						pv = *hr.Adjusted
+					}
+					if pv < alpha {
 						ro.rejected[hi] = 1
 					}
 				}

@@ -84,6 +84,57 @@ func TestPowerMatchesWaldApproximation(t *testing.T) {
 	}
 }
 
+// A plan that adjusts its hypotheses for multiplicity is powered on the
+// adjusted p-values, as its run decides. The hypotheses "x = 0" and
+// "2*x = 0" are one Wald statistic, so their p-values are equal and
+// Holm's step-down correction of two equal p-values doubles both (by its
+// definition: (m - j + 1) p_(j), then the running maximum): each is
+// rejected when p < alpha/2. Their power is the textbook normal
+// approximation of TestPowerMatchesWaldApproximation at level alpha/2,
+// within 3 Monte Carlo standard errors, and below the power at alpha.
+func TestPowerOnAdjustedPValues(t *testing.T) {
+	if testing.Short() {
+		t.Skip("1000 replicates")
+	}
+	src := strings.Replace(waldPlan, `hypotheses: ["x = 0"]`, `hypotheses: ["x = 0", "2*x = 0"]
+  multiplicity: holm`, 1)
+	if src == waldPlan {
+		t.Fatal("plan not changed")
+	}
+	p := parsePlan(t, src)
+	const n, R, b, alpha = 300, 1000, 0.5, 0.05
+	res, err := Power(p, PowerOptions{Sizes: []int{n}, Replicates: R, Alpha: alpha})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if res.Multiplicity != "holm" {
+		t.Errorf("multiplicity %q, want holm", res.Multiplicity)
+	}
+	s := res.Outcomes[0].Sizes[0]
+	F := func(z float64) float64 { return 1 / (1 + math.Exp(-z)) }
+	lo, hi := -10.0, 10.0
+	for i := 0; i < 200; i++ {
+		c := (lo + hi) / 2
+		if 0.5*F(c)+0.5*F(c-b) < 0.6 {
+			lo = c
+		} else {
+			hi = c
+		}
+	}
+	c := (lo + hi) / 2
+	p0, p1 := 1-F(c), 1-F(c-b)
+	se := math.Sqrt(1/(n/2*p0*(1-p0)) + 1/(n/2*p1*(1-p1)))
+	z := distuv.UnitNormal.Quantile(1 - alpha/4)
+	want := distuv.UnitNormal.CDF(b/se-z) + distuv.UnitNormal.CDF(-b/se-z)
+	mcse := math.Sqrt(want * (1 - want) / R)
+	for hi, h := range s.Hypotheses {
+		if got := h.Power; math.Abs(got.Rate-want) > 3*mcse {
+			t.Errorf("hypothesis %d: simulated power %.4f (MC se %.4f), normal approximation at alpha/2 %.4f", hi, got.Rate, got.SE, want)
+		}
+	}
+	t.Logf("simulated power %.4f and %.4f, normal approximation at alpha/2 %.4f", s.Hypotheses[0].Power.Rate, s.Hypotheses[1].Power.Rate, want)
+}
+
 // The study does not depend on the number of workers: the same bytes.
 func TestPowerIsReproducible(t *testing.T) {
 	p := parsePlan(t, strings.Replace(waldPlan, "effects: {x: 0.5}", "effects: {x: 0.8}", 1))

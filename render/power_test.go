@@ -1,0 +1,60 @@
+package render
+
+import (
+	"strings"
+	"testing"
+
+	"ordplan/plan/lock"
+	"ordplan/runner/simulate"
+)
+
+// The power report's opening speaks of a power study, not of a run on
+// data: the plan simulated against its lock, with the deviations listed
+// (the sentence a run's methods use, "listed at the head of the report",
+// would be untrue there), and the multiplicity correction its hypotheses
+// are powered under.
+func TestPowerReportWords(t *testing.T) {
+	f := &lock.File{FrozenAt: "2026-01-02T03:04:05Z", Version: "0.1.0", Registration: "REG-7", SHA256: "0123456789abcdef0123"}
+	pr := &simulate.PowerResult{Simulated: true, PlanFile: "p.yaml", PlanSHA256: "abc", Seed: 1, Generator: "cumulative logit",
+		Replicates: 10, Alpha: 0.05, Sizes: []int{100}, Version: "0.1.0",
+		Outcomes: []simulate.OutcomePower{{Outcome: "y", Sizes: []simulate.SizeResult{{N: 100}}}}}
+	changed := []lock.Explained{{Change: lock.Change{Path: "rules[1].reject_if_test_rejects.alpha", From: "0.01", To: "0.02"}, Reason: "the pilot"}}
+	for _, tc := range []struct {
+		name         string
+		st           *lock.Status
+		multiplicity string
+		want, not    []string
+	}{
+		{"no lock", &lock.Status{State: lock.StateNone, LockFile: "p.lock.json"}, "",
+			[]string{"**Registered plan: none.** No lock file (`p.lock.json`) lies beside the plan, so nothing ties these numbers to a registered analysis", "(Wald tests at alpha 0.05)"},
+			[]string{"the report cannot show when it was written", "the data are seen; `ordplan freeze` writes one"}},
+		{"matches", &lock.Status{State: lock.StateMatches, LockFile: "p.lock.json", Lock: f}, "holm",
+			[]string{"**Registered plan: matches**", "The plan simulated here is the frozen plan", "(Wald tests at alpha 0.05). As in the plan's run (inference.multiplicity: holm), a hypothesis counts as rejected when its p-value adjusted by Holm's step-down correction (family-wise error rate) over every hypothesis of every outcome, each in its chosen model, is below alpha."},
+			[]string{"The plan run here"}},
+		{"deviations", &lock.Status{State: lock.StateDeviations, LockFile: "p.lock.json", Lock: f, Changes: changed}, "benjamini_hochberg",
+			[]string{"## Deviations from the registered plan", "The plan simulated here, whose power and model choice are below, departs from it in 1 key(s)", "| `rules[1].reject_if_test_rejects.alpha` | `0.01` | `0.02` | the pilot |", "| Key | Registered | This study | Stated reason |", "Benjamini-Hochberg"},
+			[]string{"listed at the head of the report", "This run"}},
+		{"forced", &lock.Status{State: lock.StateUnexplained, LockFile: "p.lock.json", Lock: f, Changes: []lock.Explained{{Change: changed[0].Change}}}, "",
+			[]string{"the study was forced with `--allow-unregistered-changes`.** The power and model choice below are those of a plan that differs from the registered one", "**no stated reason**"},
+			[]string{"before the data were seen"}},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			pr.Multiplicity = tc.multiplicity
+			files, err := PowerOutputs(pr, tc.st)
+			if err != nil {
+				t.Fatal(err)
+			}
+			md := string(files["power.md"])
+			for _, w := range tc.want {
+				if !strings.Contains(md, w) {
+					t.Errorf("power.md lacks %q:\n%s", w, md)
+				}
+			}
+			for _, w := range tc.not {
+				if strings.Contains(md, w) {
+					t.Errorf("power.md has %q:\n%s", w, md)
+				}
+			}
+		})
+	}
+}
