@@ -69,7 +69,7 @@ func TestSimulationRecordsRegistration(t *testing.T) {
 			t.Errorf("%s: registration %+v, want %+v", name, got, want)
 		}
 	}
-	if b, _ := os.ReadFile(filepath.Join(dir, "p1", "power.md")); !strings.Contains(string(b), "frozen on "+lk.FrozenAt+", canonical SHA-256 "+lk.SHA256[:12]) {
+	if b, _ := os.ReadFile(filepath.Join(dir, "p1", "power.md")); !strings.Contains(string(b), "**Registered plan: matches** (`knee.lock.json`, frozen at "+lk.FrozenAt) || !strings.Contains(string(b), "canonical sha256 `"+lk.SHA256+"`") {
 		t.Errorf("power.md does not name the registration:\n%.1500s", b)
 	}
 
@@ -92,5 +92,8 @@ func TestSimulationRecordsRegistration(t *testing.T) {
 	}
 	if b, _ := os.ReadFile(filepath.Join(dir, "r2", "report.md")); !strings.Contains(string(b), "**UNREGISTERED CHANGES: 1 of the 1 change(s)") {
 		t.Errorf("the rehearsal's report does not say so")
+	}
+	if b, _ := os.ReadFile(filepath.Join(dir, "p2", "power.md")); !strings.Contains(string(b), "**UNREGISTERED CHANGES: 1 of the 1 change(s)") || !strings.Contains(string(b), "| `rules[2].reject_if_test_rejects.alpha` | `0.01` | `0.05` | **no stated reason** |") {
+		t.Errorf("the power study does not say so:\n%.2500s", b)
 	}
 }
