@@ -138,11 +138,16 @@ func catalogueData(t *testing.T, dir string) {
 		fmt.Fprintf(&quasi0, "%d,%d,%.4f\n", y, 1-g, z)
 	}
 	files := map[string]string{
-		"d.csv":         base.String(),
-		"w.csv":         weights.String(),
-		"sep.csv":       sep.String(),
-		"quasi1.csv":    quasi.String(),
-		"quasi0.csv":    quasi0.String(),
+		"d.csv":      base.String(),
+		"w.csv":      weights.String(),
+		"sep.csv":    sep.String(),
+		"quasi1.csv": quasi.String(),
+		"quasi0.csv": quasi0.String(),
+		// A seeded tiny invented study: category 2 never occurs at b = 1
+		// while 1 and 3 do, a separation only a combination of two
+		// equations' effects of b shows (M20).
+		"sep51.csv": "y,x,b,gv,gw,w\n3,0.08,1,1,0,2\n3,3.18,1,0,1,2\n1,1.02,0,0,0,2\n2,-0.02,0,1,0,1\n1,-0.48,1,0,1,1\n3,0.69,1,0,0,1\n" +
+			"3,1.86,0,0,0,2\n2,-0.16,0,0,1,2\n3,2.35,1,0,0,3\n1,-1.46,0,0,1,2\n1,-1.21,1,0,1,2\n",
 		"empty.csv":     "",
 		"header.csv":    "y,a,b\n",
 		"latin1.csv":    "y,a,b,caf\xe9\n1,0.5,1,2\n",
@@ -820,6 +825,8 @@ func catalogue(dir string) (items []badInput) {
 		{id: "M6", name: "quasi-complete separation, predictor coded the other way", args: fitArgs(d("quasi0.csv"), "--predictors", "g,z", "--nonparallel", "g"), code: 1,
 			want:  []string{"no finite maximum likelihood estimate", "predictors involved: g", "category boundaries: 1/2", `category "1" occurs only at g = 0`},
 			known: separationMissed},
+		{id: "M20", name: "separation only a combination of equations shows (adjacent logit, b constrained)", args: fitArgs(d("sep51.csv"), "--predictors", "x,b,gv,gw", "--constrained", "b", "--approach", "adjacent", "--weights", "w"), code: 1,
+			want: []string{"no finite maximum likelihood estimate", "predictors involved: b", `category "2" occurs only at b = 0`}},
 		{id: "M7", name: "more parameters than observations", args: fitArgs(d("three.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`three.csv: model cumulative/parallel/logit has 4 parameters but only 3 observations`}},
 		{id: "M8", name: "predictor in huge units (1e8)", args: fitArgs(d("d.csv"), "--predictors", "big,b", "--json"), code: 0,

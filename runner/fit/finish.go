@@ -245,7 +245,8 @@ func (src *source) certify(r *Result, ly *layout, st newtonState, info []float64
 	if src.sd == nil {
 		return false, minVec
 	}
-	if large := suspectDivergence(ly, st.theta, src.sd); large != nil {
+	large := suspectDivergence(ly, st.theta, src.sd)
+	if large != nil {
 		// Large coefficients: look for a direction along which the
 		// likelihood keeps rising (separation that leaves the scaled
 		// information well conditioned): the weakest direction, each
@@ -256,6 +257,7 @@ func (src *source) certify(r *Result, ly *layout, st newtonState, info []float64
 		}
 	}
 	// The two ridge checks read the covariance of the parameters.
+	suspect := large != nil
 	if cov, err := invertSym(info, len(st.theta)); err == nil {
 		if v := flatDirection(src.loglik, ly, st.theta, st.ll, info, cov, src.sd); v != nil {
 			return true, v
@@ -263,6 +265,13 @@ func (src *source) certify(r *Result, ly *layout, st newtonState, info []float64
 		if v := explodingDirection(src.loglik, ly, st.theta, st.ll, info, cov, src.sd); v != nil {
 			return true, v
 		}
+		suspect = suspect || wideErrors(ly, st.theta, cov, src.sd)
+	}
+	// The data's own answer: a direction of recession found by a linear
+	// programme over the rows (on every small fit, and on larger ones
+	// whose estimates or errors look diverging).
+	if v := src.recessionDirection(r, ly, st.theta, st.ll, info, suspect); v != nil {
+		return true, v
 	}
 	return false, minVec
 }

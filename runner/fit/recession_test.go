@@ -1,0 +1,115 @@
+package fit
+
+import (
+	"math"
+	"testing"
+)
+
+// seed51 is a seeded tiny invented study (11 rows, frequency weights) in
+// which category 2 never occurs at b = 1 while 1 and 3 do.
+func seed51(t *testing.T) *Data {
+	return tinyData(t, 3, [][4]float64{{3, 0.08, 1}, {3, 3.18, 1}, {1, 1.02, 0}, {2, -0.02, 0}, {1, -0.48, 1}, {3, 0.69, 1},
+		{3, 1.86, 0}, {2, -0.16, 0}, {3, 2.35, 1}, {1, -1.46, 0}, {1, -1.21, 1}},
+		"vwuvwuuwuww", []float64{2, 2, 2, 1, 1, 1, 2, 2, 3, 2, 2})
+}
+
+// Separation no ray of the estimates shows: the adjacent logit with b
+// constrained (a group of one predictor, the same model as b free across
+// equations) stopped at moderate estimates (b -13.38, phi[2] -2.457, x
+// 16.5, max |score| 3e-5, log-likelihood -4.362591167) and was reported
+// converged and chosen by AIC in a plan run, while its unconstrained twin
+// was found separated. R's lpSolve (r-cran-lpsolve), given the
+// inequalities written in R from the adjacent logit's probabilities
+// (P(c) proportional to exp(sum_{m>=c} L_m): each other category's
+// partial sum must not gain on the observed one), maximizes 1'M d at 6
+// with d = (0, 0, 0, -1, 1, 0, 0) in (tau[1], tau[2], x, b[1], b[2], g.v,
+// g.w): b's effect falling in equation 1 and rising in equation 2. The
+// log-likelihood written in R rises along it from the reported estimates
+// (-4.362591167 to -4.362591160 at 10 units) and never falls. Both forms
+// of the model must now say no finite maximum.
+func TestSeparationFoundByProgramme(t *testing.T) {
+	d := seed51(t)
+	for _, e := range []Effect{Constrained, Nonparallel} {
+		m := Model{Comparison: Adjacent, Link: Logit, Effects: []Effect{Parallel, e, Parallel, Parallel}}
+		r, err := Fit(d, m, Options{Workers: 1})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if r.Status != StatusNoFiniteMaximum || r.Separation == nil || !math.IsNaN(r.LogLik) {
+			t.Errorf("%s: status %s (%s), log-likelihood %v, estimates %v", m.Name(), r.Status, r.Message, r.LogLik, r.Estimates)
+		}
+	}
+	// The programme's own direction, in the twin's coordinates.
+	m := Model{Comparison: Adjacent, Link: Logit, Effects: []Effect{Parallel, Nonparallel, Parallel, Parallel}}
+	ly, err := newLayout(m, d.J, d.Predictors)
+	if err != nil {
+		t.Fatal(err)
+	}
+	theta := make([]float64, len(ly.params))
+	vars := lpVariables(ly, theta, m, phiHeld)
+	dir := recessionLP(recessionRows(d, distinctRows(d), m, ly, vars))
+	want := []float64{0, 0, 0, -1, 1, 0, 0} // R lpSolve
+	if len(dir) != len(want) {
+		t.Fatalf("direction %v, want a multiple of %v (R lpSolve)", dir, want)
+	}
+	for i := range want {
+		if math.Abs(dir[i]/dir[4]-want[i]) > 1e-9 {
+			t.Errorf("direction %v, want a multiple of %v (R lpSolve)", dir, want)
+			break
+		}
+	}
+}
+
+// The programme finds no direction where none exists and one where one
+// does, as R's lpSolve says on the same models written as R glm's
+// binary rows (the stage logit expanded by equation: y = m against y > m
+// on the rows with y >= m, design ~ 0 + eq + x + b:eq + g, and with
+// every term by equation): a tiny invented study of 14 weighted rows.
+// The stage partial logit has no direction (value 0): its maximum is
+// finite, though far out (R Newton: gradient 1e-15, x -24.3, errors up to
+// 2.4e6). The stage nonparallel logit has one (value 14.96): category 1
+// occurs only at g = u.
+func TestProgrammeAgainstLPSolve(t *testing.T) {
+	d := tinyData(t, 3, [][4]float64{{2, -1.24, 1}, {2, -1.36, 0}, {2, -0.66, 1}, {3, 1.38, 0}, {3, -0.33, 1}, {3, 0.01, 0}, {3, 0.81, 0},
+		{2, -0.1, 1}, {3, 1.22, 1}, {2, 0.05, 0}, {1, -0.02, 0}, {1, -1.28, 1}, {2, -1.16, 1}, {3, 1.64, 1}},
+		"vwvvvuuuwuuuvv", []float64{3, 3, 3, 3, 3, 2, 1, 2, 1, 3, 1, 2, 2, 1})
+	for _, c := range []struct {
+		effects []Effect
+		found   bool
+	}{
+		{[]Effect{Parallel, Parallel, Parallel, Parallel}, false},
+		{[]Effect{Parallel, Nonparallel, Parallel, Parallel}, false},
+		{allEffects(4, Nonparallel), true},
+	} {
+		m := Model{Comparison: Stage, Link: Logit, Effects: c.effects}
+		ly, err := newLayout(m, d.J, d.Predictors)
+		if err != nil {
+			t.Fatal(err)
+		}
+		vars := lpVariables(ly, make([]float64, len(ly.params)), m, phiHeld)
+		M := recessionRows(d, distinctRows(d), m, ly, vars)
+		dir := recessionLP(M)
+		if (dir != nil) != c.found {
+			t.Errorf("%s: direction %v, want one: %v (R lpSolve)", m.Name(), dir, c.found)
+			continue
+		}
+		if dir == nil {
+			continue
+		}
+		// A direction meets every inequality, some strictly.
+		most := 0.0
+		for i := 0; i < M.R; i++ {
+			s := 0.0
+			for v, a := range M.row(i) {
+				s += a * dir[v] * M.scale[v]
+			}
+			if s < -1e-9 {
+				t.Errorf("%s: row %d of the inequalities is %g < 0", m.Name(), i, s)
+			}
+			most = math.Max(most, s)
+		}
+		if !(most > 1e-6) {
+			t.Errorf("%s: the direction raises no row (largest %g)", m.Name(), most)
+		}
+	}
+}
