@@ -12,9 +12,12 @@ import (
 // files parts (whole: what the parts hold together), as FitOneChecked
 // gives them for one file, reading one part at a time: the thresholds-only
 // model is fitted to the category counts (without an offset its maximum
-// reproduces the observed shares, as the fit to the rows does), the
-// spread of the linear predictor for McKelvey-Zavoina is gathered part by
-// part; lz is the Lipsitz test made over the parts by the workers
+// reproduces the observed shares, as the fit to the rows does) or, with an
+// offset, to the parts' outcomes, weights and offsets gathered here in
+// part order (three numbers a row: the rows of the whole file, as a fit
+// of it reads them), the spread of the linear predictor for
+// McKelvey-Zavoina is gathered part by part; lz is the Lipsitz test made
+// over the parts by the workers
 // (queue.LipsitzPartitioned). Partitioned fits have no categorical
 // predictors, so the Pulkstenis-Robinson tests are not computed, as for one
 // file.
@@ -45,12 +48,22 @@ func PartitionedChecks(s SingleFit, res *fit.Result, parts []string, whole fit.W
 	for k := range binary {
 		binary[k] = true
 	}
-	part := dopt
-	part.Part = true // its subset values were judged on all parts (queue.PartitionFiles)
+	part, err := dopt.CodedAs(whole.Categories)
+	if err != nil {
+		return nil, err
+	}
+	part.Part = true   // its subset values were judged on all parts (queue.PartitionFiles)
+	var rows *fit.Data // with an offset: the outcome, weights and offsets of every part
+	if dopt.Offset != "" {
+		rows = &fit.Data{J: whole.J, Categories: whole.Categories}
+	}
 	for _, p := range parts {
 		ds, err := data.Load(p, part)
 		if err != nil {
 			return nil, err
+		}
+		if rows != nil {
+			gatherNullRows(rows, ds)
 		}
 		spread.Add(FitData(ds), res)
 		P := len(ds.Predictors)
@@ -59,16 +72,41 @@ func PartitionedChecks(s SingleFit, res *fit.Result, parts []string, whole fit.W
 			binary[k] = binary[k] && c >= 0 && zeroOne(ds.X, P, c)
 		}
 	}
-	o := fit.OverallFitSpread(res, null, &spread)
-	if null == nil {
-		o.LR = fit.Test{Name: o.LR.Name, Reason: "not computed for a fit over parts held by queue workers with an offset: the thresholds-only model would have to be fitted over the parts too"}
+	if rows != nil {
+		if null, err = fit.FitNull(rows, res.Model, a.Fit); err != nil {
+			return nil, err
+		}
 	}
+	o := fit.OverallFitSpread(res, null, &spread)
 	return &SingleChecks{
 		Overall:      OverallRecord{Model: res.Name, Null: fit.ModelID(res.Model.ComparisonName(), "thresholds-only", res.Model.Link), Overall: o},
 		Lipsitz:      lz,
 		PatternSplit: &PatternSplitRecord{Predictors: []string{}, NotComputed: noCategorical},
 		Readings:     plainReadings(res.Predictors, binary),
 	}, nil
+}
+
+// gatherNullRows appends to rows what a thresholds-only fit with an offset
+// needs of part ds: its outcome, weights (ones when ds has none and rows
+// already has weights, or the other way) and offsets.
+func gatherNullRows(rows *fit.Data, ds *data.Dataset) {
+	n := len(rows.Y)
+	switch {
+	case ds.Weights != nil && rows.Weights == nil:
+		rows.Weights = make([]float64, n, n+len(ds.Y))
+		for i := range rows.Weights {
+			rows.Weights[i] = 1
+		}
+		fallthrough
+	case ds.Weights != nil:
+		rows.Weights = append(rows.Weights, ds.Weights...)
+	case rows.Weights != nil:
+		for range ds.Y {
+			rows.Weights = append(rows.Weights, 1)
+		}
+	}
+	rows.Y = append(rows.Y, ds.Y...)
+	rows.Offset = append(rows.Offset, ds.Offset...)
 }
 
 // PartsRank is the rank check of a fit over parts held by workers, from

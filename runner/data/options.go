@@ -2,6 +2,7 @@ package data
 
 import (
 	"fmt"
+	"strconv"
 	"strings"
 )
 
@@ -183,4 +184,32 @@ func (r *reader) missingIn(col, cell string) bool {
 		}
 	}
 	return false
+}
+
+// CodedAs returns o set to read the outcome as the whole of data held in
+// parts has it (its category labels, lowest first), so that a part that
+// lacks a category is coded as the whole: o's own categories or codes when
+// it has them, else the whole's labels as integer codes when each is the
+// decimal text of one, else the labels. An error when o then names
+// another number of categories.
+func (o Options) CodedAs(whole []string) (Options, error) {
+	if len(o.Categories) == 0 && len(o.Codes) == 0 {
+		// Integer codes: every part reads them as the whole data's codes,
+		// as numbers (a code written +2 or 02 is the category 2).
+		for _, l := range whole {
+			c, err := strconv.ParseInt(l, 10, 64)
+			if err != nil || strconv.FormatInt(c, 10) != l {
+				o.Codes = nil
+				break
+			}
+			o.Codes = append(o.Codes, c)
+		}
+		if len(o.Codes) == 0 {
+			o.Categories = whole
+		}
+	}
+	if max(len(o.Categories), len(o.Codes)) != len(whole) {
+		return o, fmt.Errorf("the data options need the %d category labels of the whole data, in order", len(whole))
+	}
+	return o, nil
 }

@@ -11,7 +11,6 @@ import (
 	"hash"
 	"io"
 	"math"
-	"strconv"
 
 	"github.com/nats-io/nats.go/jetstream"
 
@@ -88,27 +87,12 @@ func newPartRun(ctx context.Context, c *Client, parts []PartitionRef, whole fit.
 	if len(parts) == 0 {
 		return nil, errors.New("partitioned fit: no partitions")
 	}
-	dopt := opt.Data
-	if dopt.Outcome == "" {
+	if opt.Data.Outcome == "" {
 		return nil, errors.New("partitioned fit: the data options name no outcome column")
 	}
-	if len(dopt.Categories) == 0 && len(dopt.Codes) == 0 {
-		// Integer codes: every partition reads them as the whole data's
-		// codes, as numbers (a code written +2 or 02 is the category 2).
-		for _, l := range whole.Categories {
-			c, err := strconv.ParseInt(l, 10, 64)
-			if err != nil || strconv.FormatInt(c, 10) != l {
-				dopt.Codes = nil
-				break
-			}
-			dopt.Codes = append(dopt.Codes, c)
-		}
-		if len(dopt.Codes) == 0 {
-			dopt.Categories = whole.Categories
-		}
-	}
-	if max(len(dopt.Categories), len(dopt.Codes)) != whole.J {
-		return nil, fmt.Errorf("partitioned fit: the data options need the %d category labels of the whole data, in order", whole.J)
+	dopt, err := opt.Data.CodedAs(whole.Categories)
+	if err != nil {
+		return nil, fmt.Errorf("partitioned fit: %w", err)
 	}
 	hashes := make([]string, len(parts))
 	for i, p := range parts {
