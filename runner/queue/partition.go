@@ -91,6 +91,9 @@ func newPartRun(ctx context.Context, c *Client, parts []PartitionRef, whole fit.
 		return nil, errors.New("partitioned fit: the data options name no outcome column")
 	}
 	dopt, err := opt.Data.CodedAs(whole.Categories)
+	if err == nil && len(whole.Categories) != whole.J {
+		err = fmt.Errorf("the data options need the %d category labels of the whole data, in order", whole.J)
+	}
 	if err != nil {
 		return nil, fmt.Errorf("partitioned fit: %w", err)
 	}
