@@ -50,8 +50,12 @@ func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	}
 	res := np.Result
 	q := res.J - 1
+	width := numfmt.Fixed(z, 3)
+	if res.DF != nil {
+		width = "the t quantile on its Barnard-Rubin degrees of freedom"
+	}
 	d.p("Slope of each predictor at each category boundary in %s, with %s intervals (estimate ± %s × standard error), next to the single slope of %s. Where the boundary slopes stay close to the parallel slope, within their intervals, one slope per predictor describes the data well; a trend across boundaries is what the parallel-lines tests detect. Cells give the estimate and, in brackets, its standard error.",
-		npID, pct(level), numfmt.Fixed(z, 3), parallelName(par, parID))
+		npID, pct(level), width, parallelName(par, parID))
 	bounds := make([]string, q)
 	head := []string{"Predictor"}
 	for m := 0; m < q; m++ {
@@ -84,7 +88,7 @@ func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			row = append(row, chosenCell(chosen, k))
 		}
 		rows = append(rows, row)
-		cs = append(cs, boundaryChart(d, pred, bounds, est, se, z, level, par, chosen, ch.Effects.String(), k))
+		cs = append(cs, boundaryChart(d, pred, bounds, est, se, boundaryQuantiles(res, k, level), level, par, chosen, ch.Effects.String(), k))
 	}
 	if len(rows) > 0 {
 		d.captioned(fmt.Sprintf("Slopes at each boundary, %s", npID)).table(head, rows)
@@ -132,6 +136,20 @@ func boundarySlopes(res *fit.Result, k int) (est, se []float64, ok bool) {
 	return est, se, true
 }
 
+// boundaryQuantiles is the quantile of each boundary slope's interval
+// (with boundarySlopes): the normal's, or on a fit pooled over imputed
+// sets t's on that slope's degrees of freedom.
+func boundaryQuantiles(res *fit.Result, k int, level float64) []float64 {
+	q := res.J - 1
+	out := make([]float64, q)
+	for m := range out {
+		g := make([]float64, len(res.Estimates))
+		g[paramIndex(res, fmt.Sprintf("%s[%d]", res.Predictors[k], m+1))] = 1
+		out[m] = res.ReferenceQuantile(0.5+level/2, g)
+	}
+	return out
+}
+
 func paramIndex(res *fit.Result, name string) int {
 	for i, n := range res.ParamNames {
 		if n == name {
@@ -164,12 +182,12 @@ func chosenCell(res *fit.Result, k int) string {
 }
 
 // boundaryChart draws one predictor's slopes across the boundaries.
-func boundaryChart(d *doc, pred string, bounds []string, est, se []float64, z, level float64, par *runner.FitEntry, chosen *fit.Result, chosenLevel string, k int) *chart {
+func boundaryChart(d *doc, pred string, bounds []string, est, se, crit []float64, level float64, par *runner.FitEntry, chosen *fit.Result, chosenLevel string, k int) *chart {
 	id := d.chartID()
 	q := len(bounds)
 	lo, hi := make([]float64, q), make([]float64, q)
 	for m := range est {
-		lo[m], hi[m] = est[m]-z*se[m], est[m]+z*se[m]
+		lo[m], hi[m] = est[m]-crit[m]*se[m], est[m]+crit[m]*se[m]
 	}
 	band := pct(level) + " interval"
 	l := charts.NewLine()

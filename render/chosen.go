@@ -2,12 +2,9 @@ package render
 
 import (
 	"fmt"
-	"math"
 	"slices"
 	"sort"
 	"strings"
-
-	"gonum.org/v1/gonum/stat/distuv"
 
 	"ordplan/plan"
 	"ordplan/render/numfmt"
@@ -18,7 +15,7 @@ import (
 // writeChosen writes the estimates of the chosen model.
 func writeChosen(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	res := or.Chosen.Result
-	level, z := confidence(r)
+	level, _ := confidence(r)
 	if or.Fallback {
 		d.h(3, "The chosen model: "+or.Chosen.ID+" (the plan's fallback)")
 		d.p("Every candidate was rejected by the rules; this is the fallback model the plan named for that case, not a model that passed the rules. Read its estimates with the rejections in the decision log in mind.")
@@ -37,16 +34,20 @@ func writeChosen(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	var rows [][]string
 	for _, i := range paramOrder(res.ParamNames, or, grouped) {
 		n := res.ParamNames[i]
-		est, se := res.Estimates[i], res.StdErrors[i]
-		zz := est / se
-		row := []string{ParamLabel(res, n), numfmt.Est(est), numfmt.Est(se), numfmt.Z(zz),
-			numfmt.PValue(2 * distuv.UnitNormal.Survival(math.Abs(zz))), numfmt.Est(est - z*se), numfmt.Est(est + z*se)}
+		inf := res.ParamInference(i, level)
+		row := []string{ParamLabel(res, n), numfmt.Est(res.Estimates[i]), numfmt.Est(res.StdErrors[i]), numfmt.Z(inf.Stat),
+			numfmt.PValue(inf.P), numfmt.Est(inf.Low), numfmt.Est(inf.High)}
 		if grouped {
 			row = append([]string{termOfParam(or, n)}, row...)
 		}
 		rows = append(rows, row)
 	}
-	head := []string{"Parameter", "Estimate", "Std. error", "z", "p", pct(level) + " low", pct(level) + " high"}
+	stat := "z"
+	if res.DF != nil {
+		stat = "t"
+		d.p("Pooled over the imputed sets: each p-value and interval refers to t on the estimate's Barnard-Rubin degrees of freedom (column df of the table Pooling of %s), as Rubin's rules prescribe, not to the normal.", or.Chosen.ID)
+	}
+	head := []string{"Parameter", "Estimate", "Std. error", stat, "p", pct(level) + " low", pct(level) + " high"}
 	if grouped {
 		head = append([]string{"Term"}, head...)
 	}

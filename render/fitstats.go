@@ -84,6 +84,9 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	d.p("exp(b) for a one-unit increase of each model column (what that unit is, in the column Change), with %s intervals exp(b ∓ z·se): the %s. At the first boundary (%s/%s) it multiplies the %s, and likewise at the other boundaries; above 1 the outcome moves towards higher categories. A parallel predictor has one value for every boundary; a constrained predictor has exp(φ_m g) at boundary m, its interval from the delta method on b_m = φ_m g.",
 		pct(level), kind, lo, hi, fit.OddsRatioMeaning(res.Model, lo, hi))
 	where := slices.ContainsFunc(tab.Rows, func(o runner.OddsRatioRow) bool { return o.HoldsAt != "" })
+	if res.DF != nil {
+		d.p("Pooled over the imputed sets, z is the quantile of t on the Barnard-Rubin degrees of freedom of b (of the smallest among b_m's parameters for a constrained predictor), as for the estimates.")
+	}
 	if where {
 		d.p("A column whose term enters an interaction has its odds ratio where the terms it interacts with have their columns at 0 (column Holds at). The exp(b) of an interaction column is a ratio of odds ratios: the factor by which the odds ratio of one of its components changes with a unit of the other.")
 	}

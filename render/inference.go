@@ -12,7 +12,6 @@ import (
 	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/fit"
-	"ordplan/runner/impute"
 )
 
 // writeHypotheses writes the Wald tests of the plan's hypotheses.
@@ -194,7 +193,7 @@ func predictionsCSV(r *runner.Result, or *runner.OutcomeResult) []byte {
 			if !math.IsInf(dfs[a], 1) {
 				b.WriteString(f(dfs[a]))
 			}
-			q = impute.TQuantile(0.5+level/2, dfs[a])
+			q = fit.TQuantile(0.5+level/2, dfs[a])
 		}
 		l, h := v-q*se, v+q*se
 		if lo < hi {

@@ -8,8 +8,6 @@ import (
 	"strconv"
 	"strings"
 
-	"gonum.org/v1/gonum/stat/distuv"
-
 	"ordplan/runner"
 	"ordplan/runner/fit"
 )
@@ -167,15 +165,26 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		}
 		res := f.Result
 		for i, n := range res.ParamNames {
-			est, se := res.Estimates[i], res.StdErrors[i]
-			zz := est / se
-			rows = append(rows, []string{f.ID, f.Verdict, ParamLabel(res, n), csvNum(est), csvNum(se), csvNum(zz),
-				csvNum(2 * distuv.UnitNormal.Survival(math.Abs(zz))), csvNum(est - z*se), csvNum(est + z*se)})
+			inf := res.ParamInference(i, level)
+			row := []string{f.ID, f.Verdict, ParamLabel(res, n), csvNum(res.Estimates[i]), csvNum(res.StdErrors[i]), csvNum(inf.Stat),
+				csvNum(inf.P), csvNum(inf.Low), csvNum(inf.High)}
+			if or.Imputed != nil {
+				row = append(row, "")
+				if !math.IsInf(inf.DF, 1) {
+					row[len(row)-1] = csvNum(inf.DF)
+				}
+			}
+			rows = append(rows, row)
 		}
 	}
 	lv := fmt.Sprintf("%g", 100*level)
-	add("estimates", "the estimates of every usable candidate model with standard errors, z, p and "+lv+"% intervals",
-		[]string{"model", "verdict", "parameter", "estimate", "std_error", "z", "p", "low_" + lv, "high_" + lv}, rows)
+	about = "the estimates of every usable candidate model with standard errors, z, p and " + lv + "% intervals"
+	head := []string{"model", "verdict", "parameter", "estimate", "std_error", "z", "p", "low_" + lv, "high_" + lv}
+	if or.Imputed != nil {
+		head = append(head, "df")
+		about += ", pooled over the imputed sets (z is the estimate over its standard error; p and the intervals from t on df, the Barnard-Rubin degrees of freedom; df empty when infinite)"
+	}
+	add("estimates", about, head, rows)
 
 	// Odds ratios of the chosen model.
 	if or.Chosen != nil && or.Chosen.OK() && or.Chosen.Result.Model.Link == fit.Logit {

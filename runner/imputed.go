@@ -313,7 +313,7 @@ func poolResults(rs []*fit.Result, obs float64, data []*fit.Data) (*fit.Result, 
 		return nil, nil, err
 	}
 	r := *first
-	r.Estimates, r.Cov, r.StdErrors = pl.Estimate, pl.Total, pl.SE
+	r.Estimates, r.Cov, r.StdErrors, r.DF = pl.Estimate, pl.Total, pl.SE, pl.DF
 	m := float64(len(rs))
 	r.LogLik, r.AIC, r.BIC = 0, 0, 0
 	for _, rk := range rs {
@@ -714,7 +714,7 @@ func pooledContrasts(f *FitEntry, hy *fit.Hypothesis, level float64) []fit.Contr
 	out := make([]fit.Contrast, len(hy.R))
 	for i, row := range hy.R {
 		s := f.Pooled.Linear(row, hy.C[i])
-		q := impute.TQuantile(0.5+level/2, s.DF)
+		q := fit.TQuantile(0.5+level/2, s.DF)
 		out[i] = fit.Contrast{Text: fit.ContrastText(row, hy.C[i], f.Result.ParamNames), Estimate: s.Estimate, SE: s.SE,
 			Low: s.Estimate - q*s.SE, High: s.Estimate + q*s.SE}
 		if !math.IsInf(s.DF, 1) {

@@ -162,6 +162,11 @@ type Result struct {
 	StdErrors  []float64
 	Cov        []float64 // NParams x NParams, row-major
 	CovType    Covariance
+	// DF is, per parameter, the degrees of freedom of the t distribution
+	// its intervals and p-values refer to: set on a fit pooled over
+	// imputed data sets (the Barnard-Rubin degrees of freedom), nil on a
+	// fit of one data set, whose reference is the normal (Inference).
+	DF []float64
 
 	Cutpoints []float64   // tau_1..tau_{J-1}
 	Effects   [][]float64 // [m][k]: slope of predictor k in equation m

@@ -3,8 +3,6 @@ package fit
 import (
 	"fmt"
 	"math"
-
-	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // This file holds what summarizes a fit as a whole: exponentiated effects
@@ -42,7 +40,8 @@ func OddsRatioMeaning(m Model, lo, hi string) string {
 
 // OddsRatio is exp(b_mk) of one predictor at one boundary (or at every
 // boundary, Boundary = 0, for a parallel predictor), with its interval
-// exp(b -/+ z se).
+// exp(b -/+ z se) (z the normal quantile, or t's on a pooled fit: see
+// Inference).
 type OddsRatio struct {
 	Predictor string  `json:"predictor"`
 	Boundary  int     `json:"boundary"` // 1..J-1, or 0 when one value holds at every boundary
@@ -74,13 +73,13 @@ func (r *Result) OddsRatios(level float64) ([]OddsRatio, error) {
 	if err != nil {
 		return nil, err
 	}
-	z := distuv.UnitNormal.Quantile(0.5 + level/2)
 	q, P := r.J-1, len(r.Estimates)
 	kind := OddsRatioKind(r.Model)
 	var out []OddsRatio
 	add := func(k, m int, g []float64) {
 		b := r.Effects[max(m-1, 0)][k]
 		se := math.Sqrt(quadForm(g, r.Cov))
+		z := r.ReferenceQuantile(0.5+level/2, g)
 		out = append(out, OddsRatio{Predictor: r.Predictors[k], Boundary: m, Kind: kind, Log: b, LogSE: se,
 			Ratio: math.Exp(b), Low: math.Exp(b - z*se), High: math.Exp(b + z*se)})
 	}

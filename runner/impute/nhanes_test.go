@@ -80,6 +80,21 @@ func checkNhanes(t *testing.T, v rscript.Values) float64 {
 	for k, got := range []float64{s.Estimate, s.Within, s.Between, s.Total, s.DF, s.RIV, s.FMI} {
 		near(t, []string{"qbar", "ubar", "b", "t", "df", "r", "fmi"}[k]+" (mice pool.scalar)", got, want[k], tol)
 	}
+	// D1 of one coefficient is the t test of its pooled estimate on its
+	// Barnard-Rubin degrees of freedom (mice's summary of the pooled fit:
+	// statistic, df, p), the test its interval inverts.
+	for j, name := range names {
+		C := make([]float64, p.P)
+		C[j] = 1
+		d1, err := D1(p, C, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		ts := v.Get(t, "t_statistic")[j]
+		near(t, name+" D1 F = t^2 (mice summary of pool)", d1.F, ts*ts, tol)
+		near(t, name+" D1 df2 (mice summary of pool)", d1.DF2, v.Get(t, "t_df")[j], tol)
+		near(t, name+" D1 p (mice summary of pool)", d1.P, v.Get(t, "t_p")[j], tol)
+	}
 	// D2 of bmi and hyp from each set's Wald statistic (mice::D2, which
 	// combines them by mitml): F, df1, df2, p, r.
 	d2, err := D2(v.Get(t, "wald"), 2)

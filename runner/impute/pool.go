@@ -6,6 +6,8 @@ import (
 	"math"
 
 	"gonum.org/v1/gonum/mat"
+
+	"ordplan/runner/fit"
 )
 
 // Set is the analysis of one imputed data set: the estimates (P) and
@@ -177,10 +179,10 @@ func PoolScalar(q, u []float64, dfComplete float64) (Scalar, error) {
 // pooled quantity, from t on its degrees of freedom (normal when they are
 // infinite), and the two-sided p-value of estimate / SE.
 func (s Scalar) Interval(level float64) (low, high, p float64) {
-	h := TQuantile(0.5+level/2, s.DF) * s.SE
+	h := fit.TQuantile(0.5+level/2, s.DF) * s.SE
 	p = 1
 	if s.SE > 0 {
-		p = TSurvival2(s.Estimate/s.SE, s.DF)
+		p = fit.TSurvival2(s.Estimate/s.SE, s.DF)
 	}
 	return s.Estimate - h, s.Estimate + h, p
 }
@@ -239,7 +241,11 @@ func pooledTestDF(k, m int, r float64) float64 {
 // pooled Wald statistic:
 // D1 = d' W_c^-1 d / (k (1 + r)), d = C Qbar - c0, W_c = C W C',
 // r = (1 + 1/m) tr(B_c W_c^-1) / k, referred to F(k, df) with the
-// degrees of freedom of pooledTestDF.
+// degrees of freedom of pooledTestDF; with one restriction (k = 1) to
+// F(1, df) with the Barnard-Rubin degrees of freedom of the restriction
+// (lambda = r/(1+r), the complete-data degrees of freedom of p): the t
+// test of the pooled estimate, which the interval of Rubin's rules
+// inverts.
 func D1(p *Pooled, C []float64, c0 []float64) (FTest, error) {
 	if len(C) == 0 || len(C)%p.P != 0 {
 		return FTest{}, fmt.Errorf("the contrast matrix has %d entries, not a multiple of the %d parameters", len(C), p.P)
@@ -275,6 +281,12 @@ func D1(p *Pooled, C []float64, c0 []float64) (FTest, error) {
 	q := mat.Inner(d, &Wi, d)
 	f := q / (float64(k) * (1 + r))
 	df2 := pooledTestDF(k, p.M, r)
+	if k == 1 {
+		// One restriction: D1 is the square of the pooled estimate over
+		// its total standard error, and its reference is that estimate's
+		// t, on the Barnard-Rubin degrees of freedom its interval uses.
+		df2 = BarnardRubinDF(p.M, r/(1+r), p.DFComplete)
+	}
 	return FTest{Method: "D1", F: f, DF1: k, DF2: df2, P: fSurvival(f, k, df2), RIV: r, Imputed: p.M}, nil
 }
 

@@ -268,9 +268,9 @@ func TestPoolScalar(t *testing.T) {
 	near(t, "df", s.DF, p.DF[0], 1e-15)
 	near(t, "fmi", s.FMI, p.FMI[0], 1e-15)
 	lo, hi, pv := s.Interval(0.95)
-	h := TQuantile(0.975, s.DF) * s.SE
+	h := fit.TQuantile(0.975, s.DF) * s.SE
 	near(t, "interval", hi-lo, 2*h, 1e-14)
-	near(t, "p", pv, TSurvival2(s.Estimate/s.SE, s.DF), 1e-15)
+	near(t, "p", pv, fit.TSurvival2(s.Estimate/s.SE, s.DF), 1e-15)
 
 	same, _ := PoolScalar([]float64{0.3, 0.3, 0.3}, []float64{0.01, 0.01, 0.01}, math.Inf(1))
 	if same.Between != 0 || same.RIV != 0 || !math.IsInf(same.DF, 1) {

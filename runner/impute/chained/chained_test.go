@@ -121,7 +121,7 @@ func TestRecoversEffectsMissingAtRandom(t *testing.T) {
 		mi[0], mi[1] = append(mi[0], pl.Estimate[3]), append(mi[1], pl.Estimate[4])
 		for k, truth := range []float64{trueB1, trueB2} {
 			j := 3 + k
-			if math.Abs(pl.Estimate[j]-truth) <= impute.TQuantile(0.975, pl.DF[j])*pl.SE[j] {
+			if math.Abs(pl.Estimate[j]-truth) <= fit.TQuantile(0.975, pl.DF[j])*pl.SE[j] {
 				covered[k]++
 			}
 		}

@@ -3,7 +3,8 @@
 # Analysis of Incomplete Multivariate Data, Chapman & Hall, Table 6.14):
 # five imputed sets made by mice (seeded), lm(chl ~ age + bmi + hyp) on
 # each, pooled by pool(); pool.scalar for one coefficient with the
-# complete-data sample size; D2 (mice::D2, Wald statistics combined by
+# complete-data sample size; the t test of each coefficient (summary of
+# the pooled fit); D2 (mice::D2, Wald statistics combined by
 # mitml) of bmi and hyp; D1 of bmi and hyp by mitml's testModels without
 # complete-data degrees of freedom (D1's usual large-sample F reference;
 # mice::D1 passes the residual degrees of freedom and so gets a
@@ -32,6 +33,12 @@ for (i in seq_len(m)) {
 }
 pl <- pool(fit)$pooled
 for (col in c("estimate", "ubar", "b", "t", "dfcom", "df", "riv", "lambda", "fmi")) out(col, pl[[col]])
+# The t test of each pooled coefficient (summary of pool: estimate over
+# its total standard error on the Barnard-Rubin degrees of freedom).
+sm <- summary(pool(fit))
+out("t_statistic", sm$statistic)
+out("t_df", sm$df)
+out("t_p", sm$p.value)
 Q <- sapply(fit$analyses, function(f) coef(f)[["bmi"]])
 U <- sapply(fit$analyses, function(f) vcov(f)["bmi", "bmi"])
 ps <- pool.scalar(Q, U, n = nrow(nhanes), k = 4)

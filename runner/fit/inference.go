@@ -1,0 +1,71 @@
+package fit
+
+import (
+	"math"
+
+	"gonum.org/v1/gonum/stat/distuv"
+)
+
+// Inference is the Wald inference on one parameter at a confidence level:
+// the estimate over its standard error, the two-sided p-value and the
+// interval estimate -/+ q se. The reference is the normal for a fit of
+// one data set and t on the parameter's degrees of freedom (DF) for a fit
+// pooled over imputed sets, the reference of Rubin's rules, so that the
+// estimates, the odds ratios and a hypothesis on one parameter agree.
+type Inference struct {
+	Stat, P, Low, High float64
+	DF                 float64 // +Inf for the normal reference
+}
+
+// ParamInference is the inference on parameter i (see Inference).
+func (r *Result) ParamInference(i int, level float64) Inference {
+	g := make([]float64, len(r.Estimates))
+	g[i] = 1
+	est, se := r.Estimates[i], r.StdErrors[i]
+	df := r.referenceDF(g)
+	q := TQuantile(0.5+level/2, df)
+	stat := est / se
+	return Inference{Stat: stat, P: TSurvival2(stat, df), Low: est - q*se, High: est + q*se, DF: df}
+}
+
+// referenceDF is the degrees of freedom of the reference of the
+// combination g'theta: +Inf (normal) without DF; on a pooled fit the DF of
+// the parameter g names alone, and for a combination of several (the
+// delta-method slope phi_m g_k of a constrained predictor) the smallest
+// DF among them, which errs towards wider intervals.
+func (r *Result) referenceDF(g []float64) float64 {
+	df := math.Inf(1)
+	if r.DF == nil {
+		return df
+	}
+	for i, v := range g {
+		if v != 0 && i < len(r.DF) {
+			df = math.Min(df, r.DF[i])
+		}
+	}
+	return df
+}
+
+// ReferenceQuantile is the quantile at probability pr of the reference of
+// the combination g'theta (see referenceDF).
+func (r *Result) ReferenceQuantile(pr float64, g []float64) float64 {
+	return TQuantile(pr, r.referenceDF(g))
+}
+
+// TSurvival2 is the two-sided p-value of a estimate over its standard error on df degrees of freedom (normal when df is
+// +Inf).
+func TSurvival2(z, df float64) float64 {
+	if math.IsInf(df, 1) || df > 1e7 {
+		return 2 * distuv.UnitNormal.Survival(math.Abs(z))
+	}
+	return 2 * distuv.StudentsT{Mu: 0, Sigma: 1, Nu: df}.Survival(math.Abs(z))
+}
+
+// TQuantile is the quantile at probability pr of t on df degrees of
+// freedom (the normal's when df is +Inf).
+func TQuantile(pr, df float64) float64 {
+	if math.IsInf(df, 1) || df > 1e7 {
+		return distuv.UnitNormal.Quantile(pr)
+	}
+	return distuv.StudentsT{Mu: 0, Sigma: 1, Nu: df}.Quantile(pr)
+}
