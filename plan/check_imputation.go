@@ -1,6 +1,7 @@
 package plan
 
 import (
+	"fmt"
 	"slices"
 	"strings"
 
@@ -64,6 +65,40 @@ func (d *decoder) checkImputation(p *Plan) {
 		}
 		if ok, why := chained.Fits(cm.Method, kind, kl[1]); !ok {
 			d.errAt(cm.Key, "%s", why)
+			continue
+		}
+		if cm.Method == chained.NormalDraw {
+			d.checkDrawDomain(p, cm)
+		}
+	}
+}
+
+// checkDrawDomain refuses normal draws for a column that a term takes the
+// logarithm or square root of: a normal draw can fall where the
+// transformation is undefined (the design is made from the imputed
+// columns), and the run would stop on the first such draw, at a seed's
+// whim. Mean matching imputes values observed in the data.
+func (d *decoder) checkDrawDomain(p *Plan, cm ColumnModel) {
+	seen := map[string]bool{}
+	for _, o := range append([]Outcome{{}}, p.Outcomes...) {
+		if o.Column != "" && o.Terms == nil {
+			continue // the plan's own terms, already seen
+		}
+		for _, t := range p.DesignSpec(o).Terms {
+			if t.Source != cm.Column || !(t.Log || t.Sqrt) || seen[t.Key] {
+				continue
+			}
+			seen[t.Key] = true
+			bound, how := "values below 0", fmt.Sprintf("sqrt(%s)", cm.Column)
+			if t.Log {
+				// 0 - shift: never "-0"
+				bound, how = fmt.Sprintf("values at or below %s", fmtNum(0-t.Shift)), fmt.Sprintf("log(%s)", cm.Column)
+				if t.Shift != 0 {
+					how = fmt.Sprintf("log(%s + %s)", cm.Column, fmtNum(t.Shift))
+				}
+			}
+			d.errAt(cm.Key, "normal_draw draws %s from a normal distribution, which can give %s, where %s of the term %s (%s) is undefined: a run would stop on the first such draw; impute %s by %s (the default), which imputes values observed in the data", cm.Column, bound, how, t.Name, t.Key, cm.Column, chained.MeanMatching)
+			return
 		}
 	}
 }
