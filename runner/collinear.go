@@ -71,7 +71,28 @@ func (r Reading) collinearTerms(err error, dz *design.Design, source string) (pl
 		}
 		return s
 	}
+	// An interaction among the terms that needs a combination of levels no
+	// row has is the cause, whatever column the check stopped at.
+	empty := ""
+	for _, t := range append([]int{at}, others...) {
+		if empty = dz.EmptyCells(t); empty != "" {
+			break
+		}
+	}
 	var b strings.Builder
+	switch {
+	case c.Constant && plain && empty == "":
+		fmt.Fprintf(&b, "term %q is constant (every row used has %g): it cannot be estimated alongside the cutpoints; remove it", dz.Terms[at].Name, c.Value)
+		return termPlaceOf(spec(at), b.String())
+	case c.Constant:
+		fmt.Fprintf(&b, "term %q: its column %q is %g in every row used", dz.Terms[at].Name, dz.Columns[c.Predictor], c.Value)
+		if empty == "" {
+			b.WriteString(", so it cannot be estimated alongside the cutpoints; remove the term")
+			return termPlaceOf(spec(at), b.String())
+		}
+		fmt.Fprintf(&b, ": no row used has %s, so the interaction cannot be estimated for every combination of levels; leave the interaction out, or merge levels or restrict the rows (subset) so that every combination has rows", empty)
+		return termPlaceOf(spec(at), b.String())
+	}
 	fmt.Fprintf(&b, "term %q is collinear with ", dz.Terms[at].Name)
 	switch len(others) {
 	case 0:
@@ -91,21 +112,30 @@ func (r Reading) collinearTerms(err error, dz *design.Design, source string) (pl
 	if c.Unexplained > 1e-13 {
 		fmt.Fprintf(&b, " (all but %.1g of its variance)", c.Unexplained)
 	}
-	b.WriteString(", so their effects cannot be told apart; remove ")
-	if len(others) == 0 {
-		b.WriteString("the term or lower its degree")
-	} else {
-		b.WriteString("one of the terms")
+	switch {
+	case empty != "":
+		fmt.Fprintf(&b, ": no row used has %s, so the interaction cannot be estimated for every combination of levels; leave the interaction out, or merge levels or restrict the rows (subset) so that every combination has rows", empty)
+	case len(others) == 0:
+		b.WriteString(", so their effects cannot be told apart; remove the term or lower its degree")
+	default:
+		b.WriteString(", so their effects cannot be told apart; remove one of the terms")
 	}
-	if ts := spec(at); ts != nil {
+	return termPlaceOf(spec(at), b.String())
+}
+
+// termPlaceOf is collinearTerms' result for the message msg about the
+// term ts (nil: a term not found in the reading): the term's place in the
+// plan (":LINE:COL", "" when not from a file) and msg after its key.
+func termPlaceOf(ts *design.TermSpec, msg string) (place, out string, ok bool) {
+	if ts != nil {
 		if ts.Line > 0 {
 			place = fmt.Sprintf(":%d:%d", ts.Line, ts.Col)
 		}
 		if ts.Key != "" {
-			msg = ts.Key + ": "
+			msg = ts.Key + ": " + msg
 		}
 	}
-	return place, msg + b.String(), true
+	return place, msg, true
 }
 
 // designError is err, an error of the fit input of outcome r (design dz)

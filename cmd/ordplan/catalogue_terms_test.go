@@ -87,6 +87,24 @@ func writeTiesData(t *testing.T, dir, _ string) {
 	}
 }
 
+// writeCellsData writes cells.csv: 60 rows of y, site (north, east,
+// south), grade (lo, hi) and x, where no row has site south with grade hi.
+func writeCellsData(t *testing.T, dir, _ string) {
+	t.Helper()
+	var b strings.Builder
+	b.WriteString("y,site,grade,x\n")
+	for i := 0; i < 60; i++ {
+		site, grade := []string{"north", "east", "south"}[i%3], []string{"lo", "hi"}[(i/3)%2]
+		if site == "south" {
+			grade = "lo"
+		}
+		fmt.Fprintf(&b, "%d,%s,%s,%d\n", 1+(i*7+i/5)%3, site, grade, i%7)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "cells.csv"), []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+}
+
 func btoi(b bool) int {
 	if b {
 		return 1
@@ -161,6 +179,9 @@ func termItems(dir string) []badInput {
 		{id: "T18", name: "new rows to predict at a declared level whose column was dropped (no row used has it)", args: []string{"check"}, setup: writeTermsData,
 			plan: termsEdit("south]}", "south, west], unobserved: drop}", "rules:", "inference: {predict: west.csv}\nrules:"), code: 1,
 			want: []string{`T18.yaml: inference.predict: west.csv:5: column "site": level "west" occurs in no row the model was fitted to (its column was dropped: unobserved: drop), so the model has no effect of it` + "\n"}},
+		{id: "T19", name: "an interaction of categorical predictors with a combination of levels no row has", args: []string{"check"}, setup: writeCellsData,
+			plan: termsEdit("cat.csv", "cells.csv", "south]}\n", "south]}\n  grade: {levels: [lo, hi]}\n", "[site, x]", "[site, grade, x, {interact: [site, grade]}]"), code: 1,
+			want: []string{`T19.yaml:7:30: predictors[3]: term "site&grade": its column "site.south&grade.hi" is 0 in every row used: no row used has site "south" with grade "hi", so the interaction cannot be estimated for every combination of levels; leave the interaction out, or merge levels or restrict the rows (subset) so that every combination has rows (data cells.csv, outcome "y")` + "\n"}},
 		{id: "T14", name: "a subset that leaves out a declared level", args: []string{"check", "--no-data"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: site, none_of: [south]}\npredictors:"), code: 1,
 			want: []string{`T14.yaml:7:5: subset[0]: leaves out the rows of level "south" of site, which categorical.site declares: no row used has it, so its column cannot be estimated; remove the level from categorical.site.levels (rows outside the subset may keep it) or set categorical.site.unobserved: drop` + "\n"}},

@@ -779,8 +779,8 @@ func catalogue(dir string) (items []badInput) {
 				}
 			}},
 		{id: "M1", name: "constant predictor", args: fitArgs(d("d.csv"), "--predictors", "a,c"), code: 1,
-			want:  []string{`predictor "c" is constant (every row has 5): it cannot be estimated alongside the cutpoints; remove it`},
-			check: overQueueParts("a,c", `ordplan: parts dpart1.csv, dpart2.csv: predictor "c" is constant (every row has 5): it cannot be estimated alongside the cutpoints; remove it`)},
+			want:  []string{`d.csv: --predictors item 2: term "c" is constant (every row used has 5): it cannot be estimated alongside the cutpoints; remove it`},
+			check: overQueueParts("a,c", `ordplan: parts dpart1.csv, dpart2.csv: --predictors item 2: term "c" is constant (every row used has 5): it cannot be estimated alongside the cutpoints; remove it`)},
 		{id: "M2", name: "perfectly collinear predictors", args: fitArgs(d("d.csv"), "--predictors", "a,b,d"), code: 1,
 			want:  []string{`d.csv: --predictors item 3: term "d" is collinear with terms "a", "b" and the constant, so their effects cannot be told apart; remove one of the terms`},
 			check: overQueueParts("a,b,d", `ordplan: parts dpart1.csv, dpart2.csv: --predictors item 3: term "d" is collinear with terms "a", "b" and the constant, so their effects cannot be told apart; remove one of the terms`)},

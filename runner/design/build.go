@@ -40,6 +40,13 @@ type Term struct {
 	Kept    []string
 	Dropped []string
 	code    map[int][]float64
+	// Empty lists, for an interaction reading two or more categorical
+	// columns, the combinations of their kept levels that no row used has
+	// (one level per column of EmptyOf, first column slowest): for these
+	// the interaction cannot be estimated. Found by Build for its messages;
+	// not part of the frozen design.
+	Empty   [][]string
+	EmptyOf []string
 }
 
 // Design is a built design.
@@ -137,6 +144,9 @@ func build(spec Spec, raw []float64, n int, w []float64, lines []int, fz *Frozen
 		var err error
 		if len(ts.Interact) > 0 {
 			err = d.buildInteraction(&t, ts, index)
+			if err == nil && fz == nil {
+				d.emptyCells(&t, raw, n, w)
+			}
 		} else {
 			s := slices.IndexFunc(spec.Sources, func(x Source) bool { return x.Name == ts.Source })
 			if s < 0 {
@@ -345,6 +355,86 @@ func (d *Design) buildInteraction(t *Term, ts TermSpec, index map[string]int) er
 	}
 	t.Columns = productNames(parts)
 	return nil
+}
+
+// emptyCells sets t.Empty and t.EmptyOf for interaction t (its Parts set)
+// from the raw rows: the combinations of the kept levels of the
+// categorical columns it reads, when two or more, that no row of positive
+// weight has. Left unset when the combinations number more than a million.
+func (d *Design) emptyCells(t *Term, raw []float64, n int, w []float64) {
+	S := len(d.Sources)
+	var cats []int
+	for _, p := range t.Parts {
+		for _, s := range d.termSources(p) {
+			if d.Sources[s].Cat != nil && !slices.Contains(cats, s) {
+				cats = append(cats, s)
+			}
+		}
+	}
+	if len(cats) < 2 {
+		return
+	}
+	kept := make([][]string, len(cats))
+	pos := make([]map[int]int, len(cats)) // declared level index -> place among the kept
+	cells := 1
+	for j, s := range cats {
+		kept[j], _ = d.Coded(s)
+		pos[j] = map[int]int{}
+		for k, l := range kept[j] {
+			pos[j][d.Level(s, l)] = k
+		}
+		if cells *= len(kept[j]); cells > 1<<20 {
+			return
+		}
+	}
+	seen := make([]bool, cells)
+	for i := 0; i < n; i++ {
+		if weight(w, i) <= 0 {
+			continue
+		}
+		c := 0
+		for j, s := range cats {
+			c = c*len(kept[j]) + pos[j][int(raw[i*S+s])]
+		}
+		seen[c] = true
+	}
+	for c, ok := range seen {
+		if ok {
+			continue
+		}
+		combo := make([]string, len(cats))
+		for j := len(cats) - 1; j >= 0; j-- {
+			combo[j] = kept[j][c%len(kept[j])]
+			c /= len(kept[j])
+		}
+		t.Empty = append(t.Empty, combo)
+	}
+	if t.Empty != nil {
+		for _, s := range cats {
+			t.EmptyOf = append(t.EmptyOf, d.Sources[s].Name)
+		}
+	}
+}
+
+// EmptyCells says which combinations of levels interaction term k needs
+// and no row used has, as `reg "e" with grade "hi"` (at most three, then
+// how many more), or "" when there is none (or the term is no such
+// interaction).
+func (d *Design) EmptyCells(k int) string {
+	t := &d.Terms[k]
+	var out []string
+	for _, combo := range t.Empty[:min(3, len(t.Empty))] {
+		parts := make([]string, len(combo))
+		for j, l := range combo {
+			parts[j] = fmt.Sprintf("%s %q", t.EmptyOf[j], l)
+		}
+		out = append(out, strings.Join(parts, " with "))
+	}
+	s := strings.Join(out, ", nor ")
+	if len(t.Empty) > 3 {
+		s += fmt.Sprintf(" (nor %d more combinations)", len(t.Empty)-3)
+	}
+	return s
 }
 
 // termSources lists the raw columns term k reads.

@@ -251,10 +251,14 @@ type InputError struct {
 }
 
 // Collinearity is a predictor that is a linear combination of earlier
-// ones and the constant.
+// ones and the constant, or (Constant) of the constant alone.
 type Collinearity struct {
 	Predictor int   // index of the predictor
 	With      []int // indices of the earlier predictors in the combination
+	// Constant: the predictor takes one value, Value, in every row (With
+	// is empty).
+	Constant bool
+	Value    float64
 	// Unexplained is the share of the predictor's variance the others and
 	// the constant leave unexplained (1 - R^2): below 1e-10, at the level
 	// of rounding for an exact combination.

@@ -97,7 +97,8 @@ func rankVerdict(names []string, mean []float64, tot float64, C []float64) ([]fl
 		sd[k] = math.Sqrt(C[k*K+k] / tot)
 		scale := math.Max(math.Abs(mean[k]), sd[k])
 		if sd[k] == 0 || sd[k] <= 1e-12*scale {
-			return nil, inputErr("predictor %q is constant (every row has %g): it cannot be estimated alongside the cutpoints; remove it", names[k], mean[k])
+			return nil, &InputError{Msg: fmt.Sprintf("predictor %q is constant (every row has %g): it cannot be estimated alongside the cutpoints; remove it", names[k], mean[k]),
+				Collinear: &Collinearity{Predictor: k, Constant: true, Value: mean[k]}}
 		}
 	}
 	corr := mat.NewSymDense(K, nil)
