@@ -28,6 +28,8 @@ var documentedErrors = []string{
 	"is declared but never observed",
 	"rows were dropped for missing values",
 	"is constant (every row has",
+	"is constant (every row used has",
+	"in every row used",
 	"is perfectly collinear with",
 	"is collinear with",
 	"parameters but only",
