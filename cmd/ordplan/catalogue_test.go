@@ -242,7 +242,7 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		"cr.csv": []byte(strings.ReplaceAll(csv, "\n", "\r")), "two.csv": []byte(two.String()),
 		"bad.xlsx": append([]byte("PK\x03\x04"), bytes.Repeat([]byte{7}, 200)...), "notzip.xlsx": []byte(csv),
 		"bad.parquet": []byte("PAR1garbagegarbagePAR1"), "notpq.parquet": []byte(csv), "dates.parquet": datesParquet(t),
-		"formula.xlsx": formulaWorkbook(t),
+		"formula.xlsx": formulaWorkbook(t), "shown.xlsx": shownWorkbook(t),
 		"book.xlsx":    toWorkbook(t, []byte(strings.ReplaceAll(csv, "safety", "y"))),
 		"parts/p1.csv": []byte(csv), "parts/p2.csv": []byte(csv), "otherpart.csv": []byte("y,a,z\n1,0.5,1\n"),
 		"emptypart.csv": []byte(strings.SplitAfter(csv, "\n")[0]),
@@ -281,6 +281,31 @@ func formulaWorkbook(t *testing.T) []byte {
 		}
 	}
 	f.SetCellFormula("Sheet1", "B3", "A3/4")
+	var b bytes.Buffer
+	if err := f.Write(&b); err != nil {
+		t.Fatal(err)
+	}
+	return b.Bytes()
+}
+
+// shownWorkbook is a workbook of y, a, day (dates: day numbers in a date
+// format) and g (text), whose cells G3:G4 are merged.
+func shownWorkbook(t *testing.T) []byte {
+	t.Helper()
+	f := excelize.NewFile()
+	defer f.Close()
+	for i, row := range [][]any{{"y", "a", "day", "g"}, {1, 0.5, 45292, "p"}, {2, 0.1, 45293, "q"}, {1, 0.7, 45294, nil}, {2, 0.1, 45295, "q"}} {
+		cell, _ := excelize.CoordinatesToCellName(1, i+1)
+		if err := f.SetSheetRow("Sheet1", cell, &row); err != nil {
+			t.Fatal(err)
+		}
+	}
+	style, err := f.NewStyle(&excelize.Style{NumFmt: 14})
+	if err != nil {
+		t.Fatal(err)
+	}
+	f.SetCellStyle("Sheet1", "C2", "C5", style)
+	f.MergeCell("Sheet1", "D3", "D4")
 	var b bytes.Buffer
 	if err := f.Write(&b); err != nil {
 		t.Fatal(err)
@@ -662,6 +687,10 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`formula.xlsx:3: column "a": value "=A3/4" is not a number; the cell holds a formula without its value (the workbook was saved by a program that does not compute formulas): open the workbook in a spreadsheet program and save it, or export the sheet as CSV`}},
 		{id: "X17", name: "a spreadsheet error value in a used column", args: fitArgs(d("formula.xlsx"), "--predictors", "b"), code: 1,
 			want: []string{`formula.xlsx:4: column "b": value "#DIV/0!" is not a number; it is a spreadsheet's error value: correct the formula that gave it, or list "#DIV/0!" among the missing-value markers (data.missing_values)`}},
+		{id: "X18", name: "a workbook's dates used as a number", args: fitArgs(d("shown.xlsx"), "--predictors", "a,day"), code: 1,
+			want: []string{"ordplan: shown.xlsx:2: column \"day\": value \"2024-01-01\" is not a number; it is a date: a predictor must be a number, so write it as one in a column of its own, such as the days or years since a start date, or declare the column categorical with its values as levels\n"}},
+		{id: "X19", name: "a used column's cell covered by merged cells", args: fitArgs(d("shown.xlsx"), "--predictors", "a,g|levels=p/q"), code: 1,
+			want: []string{"ordplan: shown.xlsx:4: column \"g\": value \"(merged cells D3:D4)\" is not one of the declared levels of this categorical predictor: \"p\", \"q\"; the cell is one of the merged cells D3:D4, whose one value, held by D3, the sheet shows across them all: unmerge them and write each row's value in its own cell\n"}},
 		{id: "X6", name: "CSV text named .parquet", args: fitArgs(d("notpq.parquet"), "--predictors", "a,b"), code: 1,
 			want: []string{`notpq.parquet: is not a Parquet file (it does not start and end with PAR1): convert it to Parquet, or give the file a .csv name if it is CSV text`}},
 		{id: "X7", name: "--sheet or --header-row with a file that is not a workbook", args: fitArgs(d("semi.csv"), "--predictors", "a,b", "--sheet", "survey"), code: 2,

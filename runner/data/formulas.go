@@ -25,33 +25,45 @@ import (
 // by then, so a workbook it reads but this does not is left as excelize
 // reads it).
 func unsavedFormulas(raw []byte, sheet string) map[int]map[int]string {
-	zr, err := zip.NewReader(bytes.NewReader(raw), int64(len(raw)))
-	if err != nil {
-		return nil
-	}
-	part := sheetPart(zr, sheet)
-	if part == nil {
-		return nil
-	}
-	rc, err := part.Open()
-	if err != nil {
-		return nil
-	}
-	defer rc.Close()
-	x, err := io.ReadAll(rc)
-	if err != nil {
+	_, x := workbookParts(raw, sheet)
+	if x == nil {
 		return nil
 	}
 	return scanFormulas(x)
 }
 
-// sheetPart is the ZIP entry of the worksheet named sheet, through the
-// workbook's list of sheets and its relationships.
-func sheetPart(zr *zip.Reader, sheet string) *zip.File {
+// workbookParts are the workbook's ZIP entries by name and the XML of the
+// worksheet named sheet (nil when it cannot be found or read: excelize
+// has read the workbook by then, so one that it reads but this does not
+// is left as excelize reads it).
+func workbookParts(raw []byte, sheet string) (map[string]*zip.File, []byte) {
+	zr, err := zip.NewReader(bytes.NewReader(raw), int64(len(raw)))
+	if err != nil {
+		return nil, nil
+	}
 	files := map[string]*zip.File{}
 	for _, f := range zr.File {
 		files[strings.TrimPrefix(f.Name, "/")] = f
 	}
+	part := sheetPart(files, sheet)
+	if part == nil {
+		return files, nil
+	}
+	rc, err := part.Open()
+	if err != nil {
+		return files, nil
+	}
+	defer rc.Close()
+	x, err := io.ReadAll(rc)
+	if err != nil {
+		return files, nil
+	}
+	return files, x
+}
+
+// sheetPart is the ZIP entry of the worksheet named sheet, through the
+// workbook's list of sheets and its relationships.
+func sheetPart(files map[string]*zip.File, sheet string) *zip.File {
 	var book struct {
 		Sheets []struct {
 			Name string `xml:"name,attr"`
@@ -185,12 +197,17 @@ func cellRef(tag []byte) (col, row int, ok bool) {
 }
 
 // formulaHint says what a cell that is not a number is, when a
-// spreadsheet made it so: a formula without a saved value, or an error
+// spreadsheet made it so: a formula without a saved value, one of merged
+// cells other than the one holding their value (markMerged), or an error
 // value; "" for any other text.
 func formulaHint(cell string) string {
 	switch {
 	case strings.HasPrefix(cell, "="):
 		return "; the cell holds a formula without its value (the workbook was saved by a program that does not compute formulas): open the workbook in a spreadsheet program and save it, or export the sheet as CSV"
+	case strings.HasPrefix(cell, "(merged cells ") && strings.HasSuffix(cell, ")"):
+		ref := strings.TrimSuffix(strings.TrimPrefix(cell, "(merged cells "), ")")
+		first, _, _ := strings.Cut(ref, ":")
+		return "; the cell is one of the merged cells " + ref + ", whose one value, held by " + first + ", the sheet shows across them all: unmerge them and write each row's value in its own cell"
 	case spreadsheetErrors[cell]:
 		return "; it is a spreadsheet's error value: correct the formula that gave it, or list " + quoteCell(cell) + " among the missing-value markers (data.missing_values)"
 	}

@@ -81,6 +81,13 @@ func TestWorkbookFormulas(t *testing.T) {
 // replaced by new.
 func withSheetXML(t *testing.T, raw []byte, old, new string) []byte {
 	t.Helper()
+	return withPartXML(t, raw, "xl/worksheets/sheet1.xml", old, new)
+}
+
+// withPartXML is the workbook raw with every old in its ZIP entry part
+// replaced by new.
+func withPartXML(t *testing.T, raw []byte, part, old, new string) []byte {
+	t.Helper()
 	zr, err := zip.NewReader(bytes.NewReader(raw), int64(len(raw)))
 	if err != nil {
 		t.Fatal(err)
@@ -97,7 +104,7 @@ func withSheetXML(t *testing.T, raw []byte, old, new string) []byte {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if f.Name == "xl/worksheets/sheet1.xml" {
+		if f.Name == part {
 			if !bytes.Contains(body, []byte(old)) {
 				t.Fatalf("the sheet has no %s", old)
 			}

@@ -104,11 +104,12 @@ func LoadRowsMissing(path string, predictors []string, levels map[string][]strin
 					}
 				}
 				if l < 0 {
-					msg = "value " + quoteCell(cell) + " is not one of the declared levels of this categorical predictor: " + quoteList(lv)
+					msg = "value " + quoteCell(cell) + " is not one of the declared levels of this categorical predictor: " + quoteList(lv) + formulaHint(cell)
 				}
 				v = float64(l)
 			} else {
 				v, msg = dialect.number(cell)
+				msg += notNumberHint(cell, msg)
 			}
 			if msg != "" {
 				return nil, &Error{File: path, Line: line, Column: c, Msg: msg}

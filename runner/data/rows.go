@@ -263,26 +263,25 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 				row.y = i
 				row.outLabel = cell
 			} else {
-				row.code, msg = parseCode(cell)
+				if row.code, msg = parseCode(cell); msg != "" {
+					msg += formulaHint(cell)
+				}
 				row.outLabel = strconv.FormatInt(row.code, 10)
 			}
 		case rolePredictor:
 			if idx, cat := t.levelIndex[c.name]; cat {
 				l, ok := idx[cell]
 				if !ok {
-					msg = "value " + quoteCell(cell) + " is not one of the declared levels of this categorical predictor: " + quoteList(opt.PredictorLevels[c.name]) + " (add it to the levels, or list it among the missing-value markers)" + formulaHint(cell)
+					hint := formulaHint(cell)
+					if hint == "" {
+						hint = " (add it to the levels, or list it among the missing-value markers)"
+					}
+					msg = "value " + quoteCell(cell) + " is not one of the declared levels of this categorical predictor: " + quoteList(opt.PredictorLevels[c.name]) + hint
 				}
 				t.xs[c.pos] = float64(l)
-			} else if t.xs[c.pos], msg = r.opt.Dialect.number(cell); strings.HasSuffix(msg, " is not a number") {
-				switch {
-				case timeHint(cell) != "":
-					msg += timeHint(cell)
-				case isNumberLike(cell): // a malformed number: the message says enough
-				case formulaHint(cell) != "":
-					msg += formulaHint(cell)
-				default:
-					msg += "; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)"
-				}
+			} else {
+				t.xs[c.pos], msg = r.opt.Dialect.number(cell)
+				msg += notNumberHint(cell, msg)
 			}
 		case roleWeights:
 			row.w, msg = r.opt.Dialect.number(cell)
@@ -299,6 +298,25 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 		}
 	}
 	return row, nil
+}
+
+// notNumberHint is what follows msg, the message for a predictor's cell
+// that is not a number, to say what the cell is: a date or a time, a
+// spreadsheet's formula, merged cell or error value, or text; "" for a
+// malformed number, whose message says enough, and for any other message.
+func notNumberHint(cell, msg string) string {
+	if !strings.HasSuffix(msg, " is not a number") {
+		return ""
+	}
+	switch {
+	case timeHint(cell) != "":
+		return timeHint(cell)
+	case isNumberLike(cell):
+		return ""
+	case formulaHint(cell) != "":
+		return formulaHint(cell)
+	}
+	return "; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)"
 }
 
 // intern returns one copy of a cluster id for all rows that have it, so

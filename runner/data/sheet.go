@@ -68,7 +68,79 @@ func openSheet(raw []byte, d Dialect) (*sheetRecords, string) {
 	if h > len(rows) {
 		return nil, fmt.Sprintf("sheet %s has %d rows, so no header in row %d (data.header_row, or --header-row)", quoteCell(sheet), len(rows), h)
 	}
-	return &sheetRecords{rows: rows[h-1:], first: h, formulas: unsavedFormulas(raw, sheet)}, ""
+	sr := &sheetRecords{rows: rows[h-1:], first: h}
+	if files, x := workbookParts(raw, sheet); x != nil {
+		sr.formulas = scanFormulas(x)
+		if styles, date1904 := timeStyles(files); styles != nil {
+			scanTimeCells(x, styles, func(col, row int, k timeKind) {
+				if row <= len(rows) && col <= len(rows[row-1]) {
+					rows[row-1][col-1] = timeText(rows[row-1][col-1], k, date1904)
+				}
+			})
+		}
+	}
+	merged, err := f.GetMergeCells(sheet, true)
+	if err != nil {
+		return nil, fmt.Sprintf("sheet %s cannot be read: %v", quoteCell(sheet), err)
+	}
+	markMerged(rows, h, merged)
+	return sr, ""
+}
+
+// markMerged writes into the cells of data rows (below the header row h)
+// that merged cells cover, but for the first (top left) one that holds
+// their value, a text saying so (mergedText), which no column takes as a
+// number, a level or a missing-value marker: a spreadsheet shows the
+// value across the merged cells, but the others are empty, and read as
+// missing values they would drop rows nobody left incomplete. Rows empty
+// but for such cells stay empty; columns beyond the header are left alone.
+func markMerged(rows [][]string, h int, merged []excelize.MergeCell) {
+	if len(merged) == 0 {
+		return
+	}
+	width := len(rows[h-1])
+	blank := map[int]bool{}
+	for _, m := range merged {
+		c1, r1, err1 := excelize.CellNameToCoordinates(m.GetStartAxis())
+		c2, r2, err2 := excelize.CellNameToCoordinates(m.GetEndAxis())
+		if err1 != nil || err2 != nil {
+			continue
+		}
+		text := mergedText(m.GetStartAxis() + ":" + m.GetEndAxis())
+		for r := max(r1, h+1); r <= min(r2, len(rows)); r++ {
+			empty, seen := blank[r]
+			if !seen {
+				empty = blankRow(rows[r-1])
+				blank[r] = empty
+			}
+			if empty {
+				continue
+			}
+			for c := c1; c <= min(c2, width); c++ {
+				if r == r1 && c == c1 {
+					continue
+				}
+				for len(rows[r-1]) < c {
+					rows[r-1] = append(rows[r-1], "")
+				}
+				rows[r-1][c-1] = text
+			}
+		}
+	}
+}
+
+// mergedText is what a cell covered by the merged cells ref (C2:C4) but
+// not holding their value is read as.
+func mergedText(ref string) string { return "(merged cells " + ref + ")" }
+
+// blankRow reports whether a sheet row has no filled cell.
+func blankRow(rec []string) bool {
+	for _, c := range rec {
+		if strings.TrimSpace(c) != "" {
+			return false
+		}
+	}
+	return true
 }
 
 // Read returns the next non-empty row, padded with empty cells to the
@@ -85,14 +157,7 @@ func (s *sheetRecords) Read() ([]string, error) {
 			}
 			rec[col-1] = text
 		}
-		empty := true
-		for _, c := range rec {
-			if strings.TrimSpace(c) != "" {
-				empty = false
-				break
-			}
-		}
-		if empty {
+		if blankRow(rec) {
 			continue
 		}
 		if s.width == 0 {
