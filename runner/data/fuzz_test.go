@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"errors"
 	"math"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -71,6 +72,8 @@ func FuzzReadWorkbook(f *testing.F) {
 	f.Add([]byte("PK\x03\x04"))
 	f.Add([]byte("y,a,b\n1,2,3\n"))
 	f.Add(formulaBook(f)) // formulas without saved values (formulas.go)
+	f.Add(dateBook(f, 4)) // dates and times in date formats (sheetdates.go)
+	f.Add(mergedBook(f))  // merged cells (markMerged)
 	opt := Options{Outcome: "y", Predictors: []string{"a", "b"}}
 	f.Fuzz(func(t *testing.T, in []byte) {
 		if len(in) > 1<<16 {
@@ -100,6 +103,36 @@ func FuzzScanFormulas(f *testing.F) {
 					t.Fatalf("cell row %d column %d: %q", row, col, text)
 				}
 			}
+		}
+	})
+}
+
+// FuzzSheetTimes feeds arbitrary bytes to the scan of a worksheet's XML
+// for cells in date formats, arbitrary format codes to formatKind and
+// arbitrary cells to timeText: none panics, a cell found has a sheet row
+// and column, and a number shown as a date or time is never left a number.
+func FuzzSheetTimes(f *testing.F) {
+	f.Add([]byte(`<worksheet><sheetData><row r="2"><c r="B2" s="1" t="n"><v>45292</v></c><c r="C2" s="2"><v>0.5</v></c></row></sheetData></worksheet>`), "yyyy-mm-dd", "45292.25", byte(1))
+	f.Add([]byte(`<x:worksheet><x:c r="A1" s="3" t="s"><x:v>1</x:v></x:c><x:c s="1" r="A2">`), "[h]:mm:ss", "1.5", byte(4))
+	f.Add([]byte(`<worksheet><c r="A1" s="`), `0.0 "days";[Red]\-0`, "-1", byte(3))
+	styles := map[int]timeKind{1: showsDate, 2: showsTime, 3: showsDateTime, 4: showsDuration}
+	f.Fuzz(func(t *testing.T, x []byte, code, cell string, k byte) {
+		scanTimeCells(x, styles, func(col, row int, k timeKind) {
+			if row < 1 || col < 1 || k == showsNumber {
+				t.Fatalf("cell row %d column %d kind %d", row, col, k)
+			}
+		})
+		if got := formatKind(code); got > showsDuration {
+			t.Fatalf("formatKind(%q) = %d", code, got)
+		}
+		kind := timeKind(k%4 + 1)
+		text := timeText(cell, kind, k&8 != 0)
+		if v, err := strconv.ParseFloat(cell, 64); err == nil && v >= 0 && v <= 2958465 {
+			if _, err := strconv.ParseFloat(text, 64); err == nil || !strings.Contains(text, ":") && !strings.Contains(text, "-") {
+				t.Fatalf("timeText(%q, %d) = %q, still a number", cell, kind, text)
+			}
+		} else if text != cell {
+			t.Fatalf("timeText(%q) = %q, want the cell as it is", cell, text)
 		}
 	})
 }

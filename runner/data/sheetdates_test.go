@@ -87,7 +87,7 @@ func TestTimeText(t *testing.T) {
 // dateBook is a workbook whose sheet "s" holds y, a, day (dates, as a
 // spreadsheet stores them: day numbers in a date format), at (date and
 // time) and yes (booleans).
-func dateBook(t *testing.T, n int) []byte {
+func dateBook(t testing.TB, n int) []byte {
 	t.Helper()
 	f := excelize.NewFile()
 	defer f.Close()
@@ -185,6 +185,23 @@ func withBookXML(t *testing.T, raw []byte, old, new string) []byte {
 // missing values; in a column no plan uses they are no matter, and a row
 // empty but for them stays an empty row.
 func TestWorkbookMergedCells(t *testing.T) {
+	b := mergedBook(t)
+	opt := Options{Outcome: "y", Predictors: []string{"a", "g"}, PredictorLevels: map[string][]string{"g": {"ctl", "trt"}}, Dialect: Dialect{Sheet: "s"}}
+	_, err := readBytes(b, "m.xlsx", opt)
+	want := `m.xlsx:3: column "g": value "(merged cells C2:C4)" is not one of the declared levels of this categorical predictor: "ctl", "trt"; the cell is one of the merged cells C2:C4, whose one value, held by C2, the sheet shows across them all: unmerge them`
+	if err == nil || !strings.Contains(err.Error(), want) {
+		t.Errorf("merged cells in a used column: %v\nwant %s", err, want)
+	}
+	d, err := readBytes(b, "m.xlsx", Options{Outcome: "y", Predictors: []string{"a"}, Dialect: Dialect{Sheet: "s"}})
+	if err != nil || d.N != 5 || d.RowsRead != 5 {
+		t.Errorf("merged cells in a column not used: %v %+v", err, d)
+	}
+}
+
+// mergedBook is a workbook whose sheet "s" holds y, a, g and note, with
+// merged cells C2:C4 (g) and D2:D8 (note, over two empty rows).
+func mergedBook(t testing.TB) []byte {
+	t.Helper()
 	f := excelize.NewFile()
 	defer f.Close()
 	f.SetSheetName("Sheet1", "s")
@@ -199,14 +216,5 @@ func TestWorkbookMergedCells(t *testing.T) {
 	if err := f.Write(&b); err != nil {
 		t.Fatal(err)
 	}
-	opt := Options{Outcome: "y", Predictors: []string{"a", "g"}, PredictorLevels: map[string][]string{"g": {"ctl", "trt"}}, Dialect: Dialect{Sheet: "s"}}
-	_, err := readBytes(b.Bytes(), "m.xlsx", opt)
-	want := `m.xlsx:3: column "g": value "(merged cells C2:C4)" is not one of the declared levels of this categorical predictor: "ctl", "trt"; the cell is one of the merged cells C2:C4, whose one value, held by C2, the sheet shows across them all: unmerge them`
-	if err == nil || !strings.Contains(err.Error(), want) {
-		t.Errorf("merged cells in a used column: %v\nwant %s", err, want)
-	}
-	d, err := readBytes(b.Bytes(), "m.xlsx", Options{Outcome: "y", Predictors: []string{"a"}, Dialect: Dialect{Sheet: "s"}})
-	if err != nil || d.N != 5 || d.RowsRead != 5 {
-		t.Errorf("merged cells in a column not used: %v %+v", err, d)
-	}
+	return b.Bytes()
 }
