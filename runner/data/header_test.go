@@ -42,6 +42,44 @@ func TestReadHeader(t *testing.T) {
 	}
 }
 
+// A file whose lines all end in a delimiter (a stray empty column, as
+// spreadsheets export one) has unnamed columns after its last name: they
+// are not among the names, and the file reads as the same file without
+// them, through every path (chunks, record at a time, the profile of
+// ordplan init); an unnamed column between names is still refused.
+func TestTrailingUnnamedColumns(t *testing.T) {
+	plain := "y,a,g\n1,0.5,p\n2,1.5,q\n1,-1,q\n2,2,p\n"
+	trailing := strings.ReplaceAll(plain, "\n", ",,\n")
+	for _, in := range []string{trailing, strings.ReplaceAll(plain, "\n", ", \r\n")} {
+		names, err := ReadHeader(strings.NewReader(in), "h.csv")
+		if err != nil || !reflect.DeepEqual(names, []string{"y", "a", "g"}) {
+			t.Errorf("names %q, %v", names, err)
+		}
+	}
+	opt := Options{Outcome: "y", Predictors: []string{"a", "g"}, PredictorLevels: map[string][]string{"g": {"p", "q"}}}
+	want, err := Read(strings.NewReader(plain), "t.csv", opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for name, read := range map[string]func(string) (*Dataset, error){
+		"Read":       func(s string) (*Dataset, error) { return Read(strings.NewReader(s), "t.csv", opt) },
+		"ReadStream": func(s string) (*Dataset, error) { return ReadStream(strings.NewReader(s), "t.csv", opt) },
+	} {
+		got, err := read(trailing)
+		if err != nil || !reflect.DeepEqual(got, want) {
+			t.Errorf("%s: %v\n%+v\nwant %+v", name, err, got, want)
+		}
+	}
+	path := filepath.Join(t.TempDir(), "t.csv")
+	os.WriteFile(path, []byte(trailing), 0o644)
+	if p, err := ProfileFile(path, nil, Dialect{}); err != nil || len(p) != 3 || p[2].Name != "g" || p[2].Distinct != 2 {
+		t.Errorf("profile: %v %+v", err, p)
+	}
+	if _, err := Read(strings.NewReader("y,a,\n1,2,\n2,3\n"), "t.csv", Options{Outcome: "y", Predictors: []string{"a"}}); err == nil || err.Error() != "t.csv:3: row has 2 fields but the header has 3" {
+		t.Errorf("a row without the trailing field: %v", err)
+	}
+}
+
 // Rows of weight zero stand for no observation: they are dropped and
 // counted, and a file of nothing else says so.
 func TestAllRowsZeroWeight(t *testing.T) {

@@ -58,7 +58,7 @@ func ProfileFile(path string, missingTokens []string, d Dialect) ([]Profile, err
 		if err != nil {
 			return nil, r.csvErr(err, rec)
 		}
-		for i, cell := range rec {
+		for i, cell := range rec[:min(len(rec), len(out))] { // not the unnamed columns after the last name
 			p := &out[i]
 			p.Rows++
 			cell = strings.TrimSpace(cell)

@@ -176,7 +176,11 @@ func (r *reader) header(cols []usedCol) error {
 }
 
 // names reads the header line: the column names, trimmed, and where each
-// one is. Every column needs a distinct, non-empty name.
+// one is. Every column needs a distinct, non-empty name, but for columns
+// after the last named one: a file whose lines all end in a delimiter
+// (as spreadsheets export a stray empty column) has unnamed columns there,
+// which no plan can name; they are not among the names, and the rows keep
+// the header's width.
 func (r *reader) names() ([]string, map[string]int, error) {
 	hdr, err := r.cr.Read()
 	if err == io.EOF {
@@ -187,6 +191,9 @@ func (r *reader) names() ([]string, map[string]int, error) {
 	}
 	line, _ := r.cr.FieldPos(0)
 	r.width = len(hdr)
+	for len(hdr) > 1 && strings.TrimSpace(hdr[len(hdr)-1]) == "" {
+		hdr = hdr[:len(hdr)-1]
+	}
 	names := make([]string, len(hdr))
 	where := make(map[string]int, len(hdr))
 	for i, h := range hdr {

@@ -78,11 +78,10 @@ func ValidateDialect(path string, rules []Rule, missingTokens []string, d Dialec
 	if err := r.start(in); err != nil {
 		return err
 	}
-	names, where, err := r.names()
+	_, where, err := r.names()
 	if err != nil {
 		return err
 	}
-	r.width = len(names)
 	var cols []ruled
 	for _, ru := range rules {
 		j, ok := where[ru.Column]
