@@ -8,6 +8,7 @@ package main
 // written here, from fixed seeds.
 
 import (
+	"archive/zip"
 	"bytes"
 	"compress/gzip"
 	"syscall"
@@ -242,7 +243,7 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		"cr.csv": []byte(strings.ReplaceAll(csv, "\n", "\r")), "two.csv": []byte(two.String()),
 		"bad.xlsx": append([]byte("PK\x03\x04"), bytes.Repeat([]byte{7}, 200)...), "notzip.xlsx": []byte(csv),
 		"bad.parquet": []byte("PAR1garbagegarbagePAR1"), "notpq.parquet": []byte(csv), "dates.parquet": datesParquet(t),
-		"formula.xlsx": formulaWorkbook(t), "shown.xlsx": shownWorkbook(t),
+		"formula.xlsx": formulaWorkbook(t), "shown.xlsx": shownWorkbook(t), "bomb.xlsx": claimingWorkbook(t),
 		"book.xlsx":    toWorkbook(t, []byte(strings.ReplaceAll(csv, "safety", "y"))),
 		"parts/p1.csv": []byte(csv), "parts/p2.csv": []byte(csv), "otherpart.csv": []byte("y,a,z\n1,0.5,1\n"),
 		"emptypart.csv": []byte(strings.SplitAfter(csv, "\n")[0]),
@@ -308,6 +309,23 @@ func shownWorkbook(t *testing.T) []byte {
 	f.MergeCell("Sheet1", "D3", "D4")
 	var b bytes.Buffer
 	if err := f.Write(&b); err != nil {
+		t.Fatal(err)
+	}
+	return b.Bytes()
+}
+
+// claimingWorkbook is a ZIP container whose one part, a worksheet of 64
+// compressed bytes, claims to hold 3 GB.
+func claimingWorkbook(t *testing.T) []byte {
+	t.Helper()
+	var b bytes.Buffer
+	zw := zip.NewWriter(&b)
+	w, err := zw.CreateRaw(&zip.FileHeader{Name: "xl/worksheets/sheet1.xml", Method: zip.Deflate, CompressedSize64: 64, UncompressedSize64: 3 << 30})
+	if err != nil {
+		t.Fatal(err)
+	}
+	w.Write(bytes.Repeat([]byte{0}, 64))
+	if err := zw.Close(); err != nil {
 		t.Fatal(err)
 	}
 	return b.Bytes()
@@ -691,6 +709,8 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{"ordplan: shown.xlsx:2: column \"day\": value \"2024-01-01\" is not a number; it is a date: a predictor must be a number, so write it as one in a column of its own, such as the days or years since a start date, or declare the column categorical with its values as levels\n"}},
 		{id: "X19", name: "a used column's cell covered by merged cells", args: fitArgs(d("shown.xlsx"), "--predictors", "a,g|levels=p/q"), code: 1,
 			want: []string{"ordplan: shown.xlsx:4: column \"g\": value \"(merged cells D3:D4)\" is not one of the declared levels of this categorical predictor: \"p\", \"q\"; the cell is one of the merged cells D3:D4, whose one value, held by D3, the sheet shows across them all: unmerge them and write each row's value in its own cell\n"}},
+		{id: "X20", name: "a workbook whose ZIP container claims more bytes for a part than it can hold", args: fitArgs(d("bomb.xlsx"), "--predictors", "a"), code: 1,
+			want: []string{"ordplan: bomb.xlsx: is not a readable .xlsx workbook (its part \"xl/worksheets/sheet1.xml\" claims 3221225472 bytes, more than its 64 compressed bytes can hold): open and save it again as .xlsx, or export the sheet as CSV\n"}},
 		{id: "X6", name: "CSV text named .parquet", args: fitArgs(d("notpq.parquet"), "--predictors", "a,b"), code: 1,
 			want: []string{`notpq.parquet: is not a Parquet file (it does not start and end with PAR1): convert it to Parquet, or give the file a .csv name if it is CSV text`}},
 		{id: "X7", name: "--sheet or --header-row with a file that is not a workbook", args: fitArgs(d("semi.csv"), "--predictors", "a,b", "--sheet", "survey"), code: 2,

@@ -3,6 +3,8 @@ package data
 import (
 	"archive/zip"
 	"bytes"
+	"compress/flate"
+	"hash/crc32"
 	"io"
 	"strings"
 	"testing"
@@ -88,6 +90,22 @@ func withSheetXML(t *testing.T, raw []byte, old, new string) []byte {
 // replaced by new.
 func withPartXML(t *testing.T, raw []byte, part, old, new string) []byte {
 	t.Helper()
+	return rezip(t, raw, func(name string, body []byte) []byte {
+		if name == part {
+			if !bytes.Contains(body, []byte(old)) {
+				t.Fatalf("%s has no %s", part, old)
+			}
+			body = bytes.ReplaceAll(body, []byte(old), []byte(new))
+		}
+		return body
+	}, nil)
+}
+
+// rezip is the ZIP container raw with each entry's body passed through
+// edit; claim, when not nil, gives the uncompressed size an entry's
+// header states (0: its own), written without checking.
+func rezip(t testing.TB, raw []byte, edit func(name string, body []byte) []byte, claim func(name string) uint64) []byte {
+	t.Helper()
 	zr, err := zip.NewReader(bytes.NewReader(raw), int64(len(raw)))
 	if err != nil {
 		t.Fatal(err)
@@ -104,15 +122,26 @@ func withPartXML(t *testing.T, raw []byte, part, old, new string) []byte {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if f.Name == part {
-			if !bytes.Contains(body, []byte(old)) {
-				t.Fatalf("the sheet has no %s", old)
+		body = edit(f.Name, body)
+		var w io.Writer
+		if c := uint64(0); claim != nil {
+			c = claim(f.Name)
+			if c != 0 {
+				var z bytes.Buffer
+				fw, _ := flate.NewWriter(&z, flate.BestCompression)
+				fw.Write(body)
+				fw.Close()
+				w, err = zw.CreateRaw(&zip.FileHeader{Name: f.Name, Method: zip.Deflate, CRC32: crc32.ChecksumIEEE(body), CompressedSize64: uint64(z.Len()), UncompressedSize64: c})
+				if err != nil {
+					t.Fatal(err)
+				}
+				body = z.Bytes()
 			}
-			body = bytes.ReplaceAll(body, []byte(old), []byte(new))
 		}
-		w, err := zw.Create(f.Name)
-		if err != nil {
-			t.Fatal(err)
+		if w == nil {
+			if w, err = zw.Create(f.Name); err != nil {
+				t.Fatal(err)
+			}
 		}
 		if _, err := w.Write(body); err != nil {
 			t.Fatal(err)

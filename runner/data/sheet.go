@@ -1,6 +1,7 @@
 package data
 
 import (
+	"archive/zip"
 	"bytes"
 	"encoding/csv"
 	"fmt"
@@ -44,6 +45,9 @@ type sheetRecords struct {
 func openSheet(raw []byte, d Dialect) (*sheetRecords, string) {
 	if !bytes.HasPrefix(raw, []byte("PK\x03\x04")) {
 		return nil, "is not an .xlsx workbook (it does not start like one, a ZIP container): save it as .xlsx, or give the file a .csv name if it is CSV text"
+	}
+	if msg := zipSizes(raw); msg != "" {
+		return nil, "is not a readable .xlsx workbook (" + msg + "): open and save it again as .xlsx, or export the sheet as CSV"
 	}
 	f, err := excelize.OpenReader(bytes.NewReader(raw))
 	if err != nil {
@@ -141,6 +145,25 @@ func blankRow(rec []string) bool {
 		}
 	}
 	return true
+}
+
+// zipSizes checks the sizes a workbook's ZIP container gives its parts
+// before excelize makes room for them: a part that claims more bytes than
+// its compressed bytes can hold (deflate expands at most about 1032 times)
+// is a broken or hostile file, whose claim would have the reader set aside
+// gigabytes; "" when every claim can be true, or the container is not read
+// here (excelize then says why).
+func zipSizes(raw []byte) string {
+	zr, err := zip.NewReader(bytes.NewReader(raw), int64(len(raw)))
+	if err != nil {
+		return ""
+	}
+	for _, f := range zr.File {
+		if f.UncompressedSize64 > 1<<16 && (f.UncompressedSize64-1<<16)/1100 > f.CompressedSize64 {
+			return fmt.Sprintf("its part %s claims %d bytes, more than its %d compressed bytes can hold", quoteCell(f.Name), f.UncompressedSize64, f.CompressedSize64)
+		}
+	}
+	return ""
 }
 
 // Read returns the next non-empty row, padded with empty cells to the

@@ -218,3 +218,27 @@ func mergedBook(t testing.TB) []byte {
 	}
 	return b.Bytes()
 }
+
+// A workbook whose ZIP container claims for a part more bytes than its
+// compressed bytes can hold is refused before any room is made for them
+// (excelize would set aside the claimed size: gigabytes from a file of a
+// few kilobytes); the same workbook with honest claims reads.
+func TestWorkbookPartClaims(t *testing.T) {
+	raw := formulaBook(t)
+	keep := func(_ string, body []byte) []byte { return body }
+	lying := rezip(t, raw, keep, func(name string) uint64 {
+		if name == "xl/worksheets/sheet1.xml" {
+			return 8 << 30
+		}
+		return 0
+	})
+	_, err := readBytes(lying, "bomb.xlsx", Options{Outcome: "y", Dialect: Dialect{Sheet: "s", HeaderRow: 2}})
+	want := `bomb.xlsx: is not a readable .xlsx workbook (its part "xl/worksheets/sheet1.xml" claims 8589934592 bytes, more than its `
+	if err == nil || !strings.HasPrefix(err.Error(), want) || !strings.HasSuffix(err.Error(), " compressed bytes can hold): open and save it again as .xlsx, or export the sheet as CSV") {
+		t.Errorf("lying claim: %v", err)
+	}
+	honest := rezip(t, raw, keep, nil)
+	if d, err := readBytes(honest, "ok.xlsx", Options{Outcome: "y", Predictors: []string{"a"}, Dialect: Dialect{Sheet: "s", HeaderRow: 2}}); err != nil || d.N != 5 {
+		t.Errorf("honest claims: %v", err)
+	}
+}
