@@ -320,11 +320,14 @@ func (r *reader) parseChunk(c *chunk, raw []byte, fast *fastPlan) error {
 		if !lr.next() {
 			break
 		}
-		c.d.RowsRead++
 		rec, err := lr.fields()
 		if err != nil {
 			return cr.csvErr(err, rec)
 		}
+		if blankRow(rec) {
+			continue // delimiters alone: a blank line (blankRow)
+		}
+		c.d.RowsRead++
 		if err := cr.record(c.t, c.d, rec); err != nil {
 			return err
 		}

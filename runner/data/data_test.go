@@ -1,13 +1,18 @@
 package data
 
 import (
+	"bytes"
 	"errors"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
 	"reflect"
+	"strconv"
 	"strings"
 	"testing"
+
+	"github.com/xuri/excelize/v2"
 )
 
 var opts = Options{Outcome: "y", Predictors: []string{"a", "b"}}
@@ -200,7 +205,7 @@ func TestRead(t *testing.T) {
 // outcome category (counted by hand; category 3 occurs only in an
 // incomplete row and comes last).
 func TestMissingPatterns(t *testing.T) {
-	in := "y,a,b,note\n1,,2,x\n,,,\n2,1,,\n1,,3,\n2,5,6,\n1,7,8,\nNA,1,1,\n3,,1,\n"
+	in := "y,a,b,note\n1,,2,x\n,,,z\n2,1,,\n1,,3,\n2,5,6,\n1,7,8,\nNA,1,1,\n3,,1,\n"
 	d, err := Read(strings.NewReader(in), "t.csv", Options{Outcome: "y", Predictors: []string{"a", "b"}})
 	if err != nil {
 		t.Fatal(err)
@@ -224,6 +229,58 @@ func TestMissingPatterns(t *testing.T) {
 	if d.N != 2 || d.RowsDropped != 6 {
 		t.Errorf("N %d dropped %d", d.N, d.RowsDropped)
 	}
+}
+
+// A CSV line of delimiters alone (a row a spreadsheet holds empty, as it
+// exports one) is a blank line, skipped as the CSV reader skips an empty
+// line and as a workbook's empty rows are: not a row of missing values
+// counted among the dropped ones. The same rows in a workbook give the
+// same data set; a line with one filled cell, in any column, is a row.
+func TestDelimiterLinesAreBlank(t *testing.T) {
+	in := "y,a,note\n1,0.5,x\n,,\n2,1.5,\n , ,\r\n1,,\n,,kept\n2,2,\n,,\n"
+	opt := Options{Outcome: "y", Predictors: []string{"a"}}
+	want := "rows read 5, kept 3, dropped 2, lines [2 4 8]"
+	for name, read := range map[string]func() (*Dataset, error){
+		"Read":       func() (*Dataset, error) { return Read(strings.NewReader(in), "t.csv", opt) },
+		"ReadStream": func() (*Dataset, error) { return ReadStream(strings.NewReader(in), "t.csv", opt) },
+		"workbook": func() (*Dataset, error) {
+			return readBytes(toBook(t, strings.ReplaceAll(in, "\r", "")), "t.xlsx", opt)
+		},
+	} {
+		d, err := read()
+		if err != nil {
+			t.Fatalf("%s: %v", name, err)
+		}
+		if got := fmt.Sprintf("rows read %d, kept %d, dropped %d, lines %v", d.RowsRead, d.N, d.RowsDropped, d.Lines); got != want {
+			t.Errorf("%s: %s, want %s", name, got, want)
+		}
+	}
+}
+
+// toBook writes CSV text (no quotes) as the first sheet of a workbook,
+// numbers as numbers and empty cells left out.
+func toBook(t *testing.T, text string) []byte {
+	t.Helper()
+	f := excelize.NewFile()
+	defer f.Close()
+	for i, line := range strings.Split(strings.TrimSuffix(text, "\n"), "\n") {
+		for j, cell := range strings.Split(line, ",") {
+			if strings.TrimSpace(cell) == "" {
+				continue
+			}
+			name, _ := excelize.CoordinatesToCellName(j+1, i+1)
+			if v, err := strconv.ParseFloat(cell, 64); err == nil {
+				f.SetCellValue("Sheet1", name, v)
+			} else {
+				f.SetCellStr("Sheet1", name, cell)
+			}
+		}
+	}
+	var b bytes.Buffer
+	if err := f.Write(&b); err != nil {
+		t.Fatal(err)
+	}
+	return b.Bytes()
 }
 
 func TestDatasetMethods(t *testing.T) {

@@ -26,6 +26,9 @@ func (r *reader) rows() (*Dataset, error) {
 		if err != nil {
 			return nil, r.csvErr(err, rec)
 		}
+		if blankRow(rec) {
+			continue // delimiters alone: a blank line (blankRow)
+		}
 		d.RowsRead++
 		if err := r.record(t, d, rec); err != nil {
 			return nil, err

@@ -137,7 +137,11 @@ func markMerged(rows [][]string, h int, merged []excelize.MergeCell) {
 // not holding their value is read as.
 func mergedText(ref string) string { return "(merged cells " + ref + ")" }
 
-// blankRow reports whether a sheet row has no filled cell.
+// blankRow reports whether a record has no filled cell: an empty sheet
+// row, or a CSV line of delimiters alone (as a spreadsheet exports rows
+// it holds empty), which is read as the blank line it is, as the CSV
+// reader skips those, not as a row of missing values. (A Parquet row of
+// nulls is a row of the data frame that wrote it, and counts.)
 func blankRow(rec []string) bool {
 	for _, c := range rec {
 		if strings.TrimSpace(c) != "" {
