@@ -85,21 +85,43 @@ func (env *ruleEnv) apply() {
 			env.choose(r, alive, ro)
 			return
 		}
-		var next []*FitEntry
-		for _, f := range alive {
+		// Simpler models are judged first, and a model the rule has
+		// rejected is no longer among those a later verdict of the same
+		// rule reads (a closeness rule compares a model only with simpler
+		// models it keeps); the verdicts are listed in the grid's order.
+		verdicts := map[*FitEntry]Verdict{}
+		for _, f := range simplestFirst(alive) {
 			env.nums = map[string]float64{}
-			keep, why := env.judge(r, f, alive)
-			ro.Verdicts = append(ro.Verdicts, Verdict{Model: f.ID, Kept: keep, Reason: why, Numbers: env.taken()})
-			if keep {
-				next = append(next, f)
-			} else {
+			still := slices.DeleteFunc(slices.Clone(alive), func(g *FitEntry) bool { v, judged := verdicts[g]; return judged && !v.Kept })
+			keep, why := env.judge(r, f, still)
+			verdicts[f] = Verdict{Model: f.ID, Kept: keep, Reason: why, Numbers: env.taken()}
+			if !keep {
 				f.Verdict = "rejected"
 				f.Rejected = fmt.Sprintf("%s (rule at line %d): %s", r.Kind, r.Line, why)
+			}
+		}
+		var next []*FitEntry
+		for _, f := range alive {
+			ro.Verdicts = append(ro.Verdicts, verdicts[f])
+			if verdicts[f].Kept {
+				next = append(next, f)
 			}
 		}
 		alive = next
 	}
 	or.Choice = "the plan has no choosing rule"
+}
+
+// simplestFirst orders fits so that every model comes after the models
+// nested in it (more constrained effects first: parallel, then
+// constrained, partial and stereotype, then nonparallel), the grid's
+// order kept otherwise.
+func simplestFirst(fits []*FitEntry) []*FitEntry {
+	out := slices.Clone(fits)
+	slices.SortStableFunc(out, func(a, b *FitEntry) int {
+		return len(lessConstrainedOf(b.Effects)) - len(lessConstrainedOf(a.Effects))
+	})
+	return out
 }
 
 // DescribeRules lists the plan's rules in plain words, as they will be
@@ -243,7 +265,7 @@ func (an *Analysis) DescribeRule(r plan.Rule) string {
 			}
 			where = "over the grid " + strings.Join(ax, " x ") + " (other numeric columns at their means, categorical ones at their reference level)"
 		}
-		return fmt.Sprintf("Reject a model when a simpler model of the same approach and link, still kept, predicts every category probability within %g of it %s.", r.MaxDifference, where)
+		return fmt.Sprintf("Reject a model when a simpler model of the same approach and link, still kept, predicts every category probability less than %g apart from it %s. Simpler models are judged first, so a model this rule rejects is not one of those kept.", r.MaxDifference, where)
 	case plan.RuleRejectIfSparse:
 		var parts []string
 		if r.PerParameter > 0 {
@@ -501,7 +523,7 @@ func pairTest(kind fit.TestKind, d *fit.Data, brant *fit.BrantResult, f, full *F
 }
 
 // judgeClose rejects a model when a simpler kept model of its approach and
-// link predicts every category probability within the rule's amount.
+// link predicts every category probability by less than the rule's amount.
 func (env *ruleEnv) judgeClose(r plan.Rule, f *FitEntry, alive []*FitEntry) (bool, string) {
 	var simpler []*FitEntry
 	for _, s := range alive {

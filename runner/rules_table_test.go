@@ -8,6 +8,7 @@ package runner
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 	"testing"
 
@@ -277,37 +278,74 @@ func TestTableSimplerIsClose(t *testing.T) {
 		"partial":     {0.51, 0.29, 0.2, 0.4, 0.41, 0.19, 0.2, 0.3, 0.5}, // largest difference 0.01
 		"nonparallel": {0.5, 0.3, 0.2, 0.4, 0.4, 0.2, 0.23, 0.3, 0.47},   // 0.03 from parallel, 0.03 from partial
 	}
+	// A chain: partial within 0.02 of parallel, nonparallel within 0.03 of
+	// partial but 0.05 from parallel. At 0.04 partial is rejected, so
+	// nonparallel is compared with parallel alone: a simpler model this
+	// rule rejects does not make a less constrained one unnecessary (the
+	// model left, parallel, differs from it by more than the amount).
+	chain := map[string][]float64{
+		"parallel":    {0.5, 0.3, 0.2, 0.4, 0.4, 0.2, 0.2, 0.3, 0.5},
+		"partial":     {0.52, 0.28, 0.2, 0.4, 0.4, 0.2, 0.2, 0.3, 0.5},
+		"nonparallel": {0.55, 0.25, 0.2, 0.4, 0.4, 0.2, 0.2, 0.3, 0.5},
+	}
 	cases := []struct {
 		name, rule string
 		want       []string
+		probs      map[string][]float64 // nil: probs
+		grid       string               // the plan's effects (default parallel, partial, nonparallel)
 	}{
-		{"rows", "{max_difference: 0.02}", []string{
+		{name: "chain", rule: "{max_difference: 0.04}", probs: chain, want: []string{
+			"cumulative/parallel/logit: kept: no simpler model of this approach and link is still kept",
+			"cumulative/partial/logit: rejected: largest difference from cumulative/parallel/logit in a predicted category probability over the 3 rows used: 0.02 (category low at the row on line 2 of the data file) < 0.04, the simpler model suffices",
+			"cumulative/nonparallel/logit: kept: largest difference from cumulative/parallel/logit in a predicted category probability over the 3 rows used: 0.05 (category low at the row on line 2 of the data file) >= 0.04",
+		}},
+		// The plan may list the effects in any order: simpler models are
+		// still judged first, and the verdicts keep the grid's order.
+		{name: "chain, grid listed from the least constrained", rule: "{max_difference: 0.04}", probs: chain, grid: "[nonparallel, partial, parallel]", want: []string{
+			"cumulative/nonparallel/logit: kept: largest difference from cumulative/parallel/logit in a predicted category probability over the 3 rows used: 0.05 (category low at the row on line 2 of the data file) >= 0.04",
+			"cumulative/partial/logit: rejected: largest difference from cumulative/parallel/logit in a predicted category probability over the 3 rows used: 0.02 (category low at the row on line 2 of the data file) < 0.04, the simpler model suffices",
+			"cumulative/parallel/logit: kept: no simpler model of this approach and link is still kept",
+		}},
+		{name: "rows", rule: "{max_difference: 0.02}", want: []string{
 			"cumulative/parallel/logit: kept: no simpler model of this approach and link is still kept",
 			"cumulative/partial/logit: rejected: largest difference from cumulative/parallel/logit in a predicted category probability over the 3 rows used: 0.01 (category low at the row on line 2 of the data file) < 0.02, the simpler model suffices",
-			"cumulative/nonparallel/logit: kept: largest difference from cumulative/parallel/logit in a predicted category probability over the 3 rows used: 0.03 (category high at the row on line 4 of the data file) >= 0.02; largest difference from cumulative/partial/logit in a predicted category probability over the 3 rows used: 0.03 (category high at the row on line 4 of the data file) >= 0.02",
+			"cumulative/nonparallel/logit: kept: largest difference from cumulative/parallel/logit in a predicted category probability over the 3 rows used: 0.03 (category high at the row on line 4 of the data file) >= 0.02",
 		}},
 		// 0.03 exactly is not below 0.03: the less constrained model stays.
-		{"tie at the amount", "{max_difference: 0.03}", []string{
+		{name: "tie at the amount", rule: "{max_difference: 0.03}", want: []string{
 			"cumulative/parallel/logit: kept: no simpler model of this approach and link is still kept",
 			"cumulative/partial/logit: rejected: largest difference from cumulative/parallel/logit in a predicted category probability over the 3 rows used: 0.01 (category low at the row on line 2 of the data file) < 0.03, the simpler model suffices",
-			"cumulative/nonparallel/logit: kept: largest difference from cumulative/parallel/logit in a predicted category probability over the 3 rows used: 0.03 (category high at the row on line 4 of the data file) >= 0.03; largest difference from cumulative/partial/logit in a predicted category probability over the 3 rows used: 0.03 (category high at the row on line 4 of the data file) >= 0.03",
+			"cumulative/nonparallel/logit: kept: largest difference from cumulative/parallel/logit in a predicted category probability over the 3 rows used: 0.03 (category high at the row on line 4 of the data file) >= 0.03",
 		}},
-		{"grid", "{max_difference: 0.05, grid: {x: [0, 1, 2]}}", []string{
+		// partial, rejected by this rule, is not a simpler model that
+		// nonparallel is compared with.
+		{name: "grid", rule: "{max_difference: 0.05, grid: {x: [0, 1, 2]}}", want: []string{
 			"cumulative/parallel/logit: kept: no simpler model of this approach and link is still kept",
 			"cumulative/partial/logit: rejected: largest difference from cumulative/parallel/logit in a predicted category probability over the 3 grid points: 0.01 (category low at x = 0) < 0.05, the simpler model suffices",
-			"cumulative/nonparallel/logit: rejected: largest difference from cumulative/parallel/logit in a predicted category probability over the 3 grid points: 0.03 (category high at x = 2) < 0.05, the simpler model suffices; largest difference from cumulative/partial/logit in a predicted category probability over the 3 grid points: 0.03 (category high at x = 2) < 0.05, the simpler model suffices",
+			"cumulative/nonparallel/logit: rejected: largest difference from cumulative/parallel/logit in a predicted category probability over the 3 grid points: 0.03 (category high at x = 2) < 0.05, the simpler model suffices",
 		}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			p := handPlan(t, "[parallel, partial, nonparallel]", "  - reject_if_simpler_is_close: "+c.rule+"\n  - choose: {by: aic}\n")
-			or := handOutcome(threeFits(), []int{0, 1, 2}, []float64{0, 1, 2})
+			grid, pr := "[parallel, partial, nonparallel]", probs
+			if c.grid != "" {
+				grid = c.grid
+			}
+			if c.probs != nil {
+				pr = c.probs
+			}
+			p := handPlan(t, grid, "  - reject_if_simpler_is_close: "+c.rule+"\n  - choose: {by: aic}\n")
+			fits := threeFits()
+			if c.grid != "" {
+				slices.Reverse(fits)
+			}
+			or := handOutcome(fits, []int{0, 1, 2}, []float64{0, 1, 2})
 			env := newRuleEnv(ResolvePlan(p), or)
 			env.probs = func(f *FitEntry, X, off []float64) ([]float64, error) {
 				if len(X) != 3 || X[0] != 0 || X[1] != 1 || X[2] != 2 {
 					return nil, fmt.Errorf("unexpected points %v", X)
 				}
-				return probs[f.Effects.String()], nil
+				return pr[f.Effects.String()], nil
 			}
 			env.apply()
 			wantLines(t, verdictLines(or, 0), c.want)
