@@ -32,6 +32,9 @@ type ruleEnv struct {
 
 	// nums collects the numbers of the verdict being made.
 	nums map[string]float64
+	// rejectedBy gives, for a candidate an earlier rule rejected, that
+	// rule's number (1-based, as the report numbers the rules) and kind.
+	rejectedBy map[*FitEntry]string
 
 	probCache map[string][]float64
 	ticCache  map[*FitEntry][3]float64
@@ -78,7 +81,8 @@ func (env *ruleEnv) apply() {
 		}
 		alive = append(alive, f)
 	}
-	for _, r := range env.an.Rules {
+	env.rejectedBy = map[*FitEntry]string{}
+	for i, r := range env.an.Rules {
 		ro := &RuleOutcome{Rule: r, Description: env.an.DescribeRule(r)}
 		or.Rules = append(or.Rules, ro)
 		if r.Final() {
@@ -98,6 +102,11 @@ func (env *ruleEnv) apply() {
 			if !keep {
 				f.Verdict = "rejected"
 				f.Rejected = fmt.Sprintf("%s (rule at line %d): %s", r.Kind, r.Line, why)
+			}
+		}
+		for f, v := range verdicts {
+			if !v.Kept {
+				env.rejectedBy[f] = fmt.Sprintf("rule %d, %s", i+1, r.Kind)
 			}
 		}
 		var next []*FitEntry
@@ -248,10 +257,11 @@ func (an *Analysis) DescribeRule(r plan.Rule) string {
 			s += " Only models with " + strings.Join(wordsOf(r.AppliesTo), " or ") + " effects are tested."
 		}
 		if r.Test.NeedsFullFit() {
-			s += " A model whose comparison model has no usable fit is kept, untested, and the log says so."
+			s += " No test is made against a comparison model that has no usable fit (a model with no other comparison is kept), and the log says so."
 		} else {
 			s += fmt.Sprintf(" The %s test needs only the fit of the model tested, so it is made also where the comparison model has no usable fit.", r.Test.Title())
 		}
+		s += " A test that cannot be computed rejects nothing, and the log says why; a comparison model that an earlier rule rejected still serves, and the log says so."
 		if c := an.clusterCaveat(r); c != "" {
 			s += " " + c + "."
 		}
@@ -425,6 +435,8 @@ func (env *ruleEnv) judgeTest(r plan.Rule, f *FitEntry) (bool, string) {
 		rejected = rejected || below
 		if !full.OK() {
 			cmp += fmt.Sprintf(" (%s itself has no usable fit, %s; the %s test does not need it)", full.ID, full.unusable(), r.Test.Title())
+		} else if by := env.rejectedBy[full]; by != "" {
+			cmp += fmt.Sprintf(" (%s was itself rejected by %s; the test uses its fit all the same)", full.ID, by)
 		}
 		parts = append(parts, s+cmp)
 	}

@@ -131,42 +131,62 @@ func TestTableTestRule(t *testing.T) {
 		against string
 		fits    []handFit
 		want    []string
+		pre     string // rules before the test rule
 	}{
-		{"least constrained", "least_constrained", threeFits(), []string{
+		{name: "least constrained", against: "least_constrained", fits: threeFits(), want: []string{
 			"cumulative/parallel/logit: rejected: likelihood-ratio test against cumulative/nonparallel/logit: chi2(2) = 14.500, p = 0.0007 < alpha 0.05",
 			"cumulative/partial/logit: kept: likelihood-ratio test against cumulative/nonparallel/logit: chi2(1) = 3.841, p = 0.0500 (exactly 0.05) >= alpha 0.05",
 			"cumulative/nonparallel/logit: kept: no less constrained model of this approach and link in the grid",
 		}},
-		{"next less constrained", "next_less_constrained", threeFits(), []string{
+		{name: "next less constrained", against: "next_less_constrained", fits: threeFits(), want: []string{
 			"cumulative/parallel/logit: kept: likelihood-ratio test against cumulative/partial/logit: chi2(1) = 1.200, p = 0.2733 >= alpha 0.05",
 			"cumulative/partial/logit: kept: likelihood-ratio test against cumulative/nonparallel/logit: chi2(1) = 3.841, p = 0.0500 (exactly 0.05) >= alpha 0.05",
 			"cumulative/nonparallel/logit: kept: no less constrained model of this approach and link in the grid",
 		}},
-		{"each less constrained", "each_less_constrained", threeFits(), []string{
+		{name: "each less constrained", against: "each_less_constrained", fits: threeFits(), want: []string{
 			"cumulative/parallel/logit: rejected: likelihood-ratio test against cumulative/partial/logit: chi2(1) = 1.200, p = 0.2733 >= alpha 0.05; likelihood-ratio test against cumulative/nonparallel/logit: chi2(2) = 14.500, p = 0.0007 < alpha 0.05",
 			"cumulative/partial/logit: kept: likelihood-ratio test against cumulative/nonparallel/logit: chi2(1) = 3.841, p = 0.0500 (exactly 0.05) >= alpha 0.05",
 			"cumulative/nonparallel/logit: kept: no less constrained model of this approach and link in the grid",
 		}},
-		{"comparison model without a fit", "least_constrained", func() []handFit {
+		{name: "comparison model without a fit", against: "least_constrained", fits: func() []handFit {
 			f := threeFits()
 			f[2].status = fit.StatusNoFiniteMaximum
 			return f
-		}(), []string{
+		}(), want: []string{
 			"cumulative/parallel/logit: kept: not tested against cumulative/nonparallel/logit: it has no usable fit (status no_finite_maximum)",
 			"cumulative/partial/logit: kept: not tested against cumulative/nonparallel/logit: it has no usable fit (status no_finite_maximum)",
 			"cumulative/nonparallel/logit: kept: not judged: status no_finite_maximum, no usable estimates (an earlier reject_unconverged rule would reject it)",
 		}},
+		// The comparison is the grid's model, whether or not an earlier
+		// rule rejected it; the verdict says so.
+		{name: "comparison model rejected by an earlier rule", against: "least_constrained", pre: "  - reject_if_sparse: {per_parameter: 0.7}\n", fits: threeFits(), want: []string{
+			"cumulative/parallel/logit: rejected: likelihood-ratio test against cumulative/nonparallel/logit: chi2(2) = 14.500, p = 0.0007 < alpha 0.05 (cumulative/nonparallel/logit was itself rejected by rule 1, reject_if_sparse; the test uses its fit all the same)",
+			"cumulative/partial/logit: kept: likelihood-ratio test against cumulative/nonparallel/logit: chi2(1) = 3.841, p = 0.0500 (exactly 0.05) >= alpha 0.05 (cumulative/nonparallel/logit was itself rejected by rule 1, reject_if_sparse; the test uses its fit all the same)",
+		}},
+		// A test that cannot be computed rejects nothing.
+		{name: "test not computable", against: "each_less_constrained", fits: func() []handFit {
+			f := threeFits()
+			f[1].id = "cumulative/constrained/logit"
+			return f
+		}(), want: []string{
+			"cumulative/parallel/logit: rejected: the likelihood-ratio test against cumulative/constrained/logit cannot be computed (a model does not have more parameters than the other); likelihood-ratio test against cumulative/nonparallel/logit: chi2(2) = 14.500, p = 0.0007 < alpha 0.05",
+			"cumulative/constrained/logit: kept: the likelihood-ratio test against cumulative/nonparallel/logit cannot be computed (a model does not have more parameters than the other)",
+			"cumulative/nonparallel/logit: kept: no less constrained model of this approach and link in the grid",
+		}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			p := handPlan(t, "[parallel, partial, nonparallel]", fmt.Sprintf("  - reject_if_test_rejects: {test: lr, alpha: 0.05, against: %s}\n  - choose: {by: aic}\n", c.against))
+			p := handPlan(t, "[parallel, partial, nonparallel]", c.pre+fmt.Sprintf("  - reject_if_test_rejects: {test: lr, alpha: 0.05, against: %s}\n  - choose: {by: aic}\n", c.against))
 			or := handOutcome(c.fits, []int{0, 1, 2}, []float64{0, 1, 2})
 			env := newRuleEnv(ResolvePlan(p), or)
 			env.test = func(kind fit.TestKind, f, full *FitEntry) fit.Test {
-				return tests[f.Effects.String()+"|"+full.Effects.String()]
+				if t, ok := tests[f.Effects.String()+"|"+full.Effects.String()]; ok {
+					return t
+				}
+				return fit.Test{Name: "lr", Reason: "a model does not have more parameters than the other"}
 			}
 			env.apply()
-			wantLines(t, verdictLines(or, 0), c.want)
+			wantLines(t, verdictLines(or, len(or.Rules)-2), c.want)
 			// decisions.json carries the same numbers unrounded.
 			if c.name == "least constrained" {
 				got := or.Rules[0].Verdicts[0].Numbers
