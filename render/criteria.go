@@ -42,7 +42,11 @@ func criteriaChart(d *doc, or *runner.OutcomeResult, sampling bool) *chart {
 		return nil
 	}
 	id := d.chartID()
-	caption := "AIC and BIC of each candidate model (smaller is better); the chosen model is the large diamond. BIC charges more for each parameter than AIC once there are more than seven observations."
+	chosen := "the chosen model is the large diamond"
+	if or.Chosen == nil {
+		chosen = "no model was chosen"
+	}
+	caption := "AIC and BIC of each candidate model (smaller is better); " + chosen + ". BIC charges more for each parameter than AIC once there are more than seven observations."
 	if sampling {
 		caption += " Under sampling weights both are descriptive only: the log-likelihood is a pseudo-likelihood."
 	}

@@ -2,6 +2,7 @@ package render
 
 import (
 	"fmt"
+	"strings"
 
 	"ordplan/runner"
 )
@@ -37,7 +38,7 @@ func writeDecisionLog(d *doc, or *runner.OutcomeResult) {
 	}
 	switch {
 	case or.Chosen == nil:
-		d.p("**Result: no model chosen.** %s.", or.Choice)
+		d.p("**Result: no model chosen:** %s.", strings.TrimPrefix(or.Choice, "no model chosen: "))
 	case or.Fallback:
 		d.p("**Result (the plan's fallback, not a choice by the rules):** %s.", or.Choice)
 	default:

@@ -88,7 +88,20 @@ func writeSummary(d *doc, r *runner.Result) {
 		items = append(items, item)
 	}
 	d.list(items)
-	d.p("The sections below give the data, every candidate model, the tests, each decision rule's verdict on each model, and then the chosen model's estimates, predicted probabilities and marginal effects. report.html holds the same text with charts.")
+	chosen := 0
+	for _, or := range r.Outcomes {
+		if or.Chosen != nil {
+			chosen++
+		}
+	}
+	switch {
+	case chosen == 0:
+		d.p("The sections below give the data, every candidate model, the tests and each decision rule's verdict on each model; no model was chosen, so no estimates, predicted probabilities or marginal effects of a chosen model follow. report.html holds the same text with charts.")
+	case chosen < len(r.Outcomes):
+		d.p("The sections below give the data, every candidate model, the tests, each decision rule's verdict on each model, and then, for each outcome with a chosen model, its estimates, predicted probabilities and marginal effects. report.html holds the same text with charts.")
+	default:
+		d.p("The sections below give the data, every candidate model, the tests, each decision rule's verdict on each model, and then the chosen model's estimates, predicted probabilities and marginal effects. report.html holds the same text with charts.")
+	}
 }
 
 // errorsCell is the plan table's standard errors: the plan's value, and
@@ -212,11 +225,52 @@ func writeLimits(d *doc, r *runner.Result) {
 		boundariesSentence(r, "Cumulative partial and nonparallel models can predict negative category probabilities for some covariate values (their cumulative probabilities cross). The number of rows of the data where this happens is shown for every model, and predictions on the grid of the focus predictor are checked too; predictions outside the observed covariate range are more exposed."),
 		startsSentence(r),
 		rowsSentence(r),
-		"The chosen model's standard errors, p-values and intervals (of its estimates, predicted probabilities and marginal effects) treat it as fixed in advance, not as the result of the selection made by the rules, and of any stepwise choice of partial effects, on the same data: they leave out the uncertainty of that selection, so intervals tend to be too narrow and p-values too small.",
-		"Standard errors of predicted probabilities and marginal effects use the delta method: they are first-order approximations.",
+		selectionSentence(r),
+		chosenSentence(r, "Standard errors of predicted probabilities and marginal effects use the delta method: they are first-order approximations."),
 		multiplicitySentence(r),
 	}
 	d.list(slices.DeleteFunc(items, func(s string) bool { return s == "" }))
+}
+
+// selectionSentence is the caveat on selection: the chosen models'
+// errors leave out the uncertainty of the choice the rules (and any
+// stepwise search) made on the same data; when every outcome with a chosen
+// model had one candidate and no stepwise search, no choice was made and
+// the sentence says so; "" when no model was chosen.
+func selectionSentence(r *runner.Result) string {
+	chosen, chose := false, false
+	for _, or := range r.Outcomes {
+		if or.Chosen == nil {
+			continue
+		}
+		chosen = true
+		candidates := 0
+		for _, f := range or.Fits {
+			if !f.Auxiliary {
+				candidates++
+			}
+		}
+		chose = chose || candidates > 1 || r.Plan.Models.Partial.Select != nil
+	}
+	switch {
+	case !chosen:
+		return ""
+	case !chose:
+		return "The plan's one candidate model was not selected among others, so its standard errors, p-values and intervals leave out no uncertainty of a choice between models; they rest on its form (link, terms, effect structure) being right."
+	}
+	return "The chosen model's standard errors, p-values and intervals (of its estimates, predicted probabilities and marginal effects) treat it as fixed in advance, not as the result of the selection made by the rules, and of any stepwise choice of partial effects, on the same data: they leave out the uncertainty of that selection, so intervals tend to be too narrow and p-values too small."
+}
+
+// chosenSentence is s when some outcome has a chosen model (whose
+// estimates, predictions and marginal effects the report shows), "" when
+// none has.
+func chosenSentence(r *runner.Result, s string) string {
+	for _, or := range r.Outcomes {
+		if or.Chosen != nil {
+			return s
+		}
+	}
+	return ""
 }
 
 // boundariesSentence is s when some outcome has more than two categories

@@ -188,7 +188,7 @@ func writeMethods(d *doc, r *runner.Result) {
 			rules = append(rules, fmt.Sprintf("(%d) %s", i+1, strings.TrimSuffix(ro.Description, ".")))
 		}
 		if len(rules) > 0 {
-			s = append(s, "A model was chosen by applying the plan's decision rules in order: "+strings.Join(rules, "; ")+".")
+			s = append(s, "The plan's decision rules were applied in order: "+strings.Join(rules, "; ")+".")
 		}
 		if or.Chosen != nil && or.Fallback {
 			s = append(s, fmt.Sprintf("Every candidate was rejected by the rules, so the model reported is %s, the fallback the plan named for that case.", or.Chosen.ID))
@@ -216,10 +216,14 @@ func writeMethods(d *doc, r *runner.Result) {
 		if or.GOFPooling != nil && or.Lipsitz != nil && !sampling {
 			s = append(s, fmt.Sprintf("On the imputed data these goodness-of-fit tests were computed on each imputed set with that set's fit of the chosen model, and their chi-square statistics were combined by the D2 rule %s, an approximation that is less powerful than the pooled tests of estimates or likelihoods.", c.cite("d2")))
 		}
-		if p.Models.HasEffects(fit.ConstrainedEffects) || p.Models.HasEffects(fit.StereotypeEffects) {
+		starts := p.Models.HasEffects(fit.ConstrainedEffects) || p.Models.HasEffects(fit.StereotypeEffects)
+		switch {
+		case or.Chosen != nil && starts:
 			s = append(s, fmt.Sprintf("Predicted probabilities and marginal effects have delta-method standard errors (the intervals of probabilities made on their log-odds scale); the random starts of constrained fits used the seed %d.", p.Seed))
-		} else {
+		case or.Chosen != nil:
 			s = append(s, "Predicted probabilities and marginal effects have delta-method standard errors (the intervals of probabilities made on their log-odds scale).")
+		case starts:
+			s = append(s, fmt.Sprintf("The random starts of constrained fits used the seed %d.", p.Seed))
 		}
 		d.p("%s", strings.Join(s, " "))
 	}
