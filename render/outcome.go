@@ -92,7 +92,11 @@ func writeData(d *doc, or *runner.OutcomeResult, sampling bool) {
 		d.captioned("Outcome categories").table([]string{"Category", "Count", "Share"}, rows)
 	}
 	if terms := or.TermDescriptions(); len(terms) > 0 {
-		d.p("Predictor terms: how each term of the plan became columns of the models. Constants computed from the rows used (means, standard deviations, quantile knots, orthogonal-polynomial coefficients) are frozen and reused for predictions on new rows; decisions.json records them. A term's columns share one effect structure (parallel, nonparallel or constrained) and are tested together.")
+		onSets := ""
+		if or.Imputed != nil {
+			onSets = " On imputed data they are computed on the first imputed set and used for every set, so that each parameter means the same in every set, as pooling by Rubin's rules needs."
+		}
+		d.p("Predictor terms: how each term of the plan became columns of the models. Constants computed from the rows used (means, standard deviations, quantile knots, orthogonal-polynomial coefficients) are frozen and reused for predictions on new rows; decisions.json records them." + onSets + " A term's columns share one effect structure (parallel, nonparallel or constrained) and are tested together.")
 		var rows [][]string
 		for _, t := range terms {
 			rows = append(rows, []string{t[0], t[1], t[2]})
