@@ -126,7 +126,7 @@ func termItems(dir string) []badInput {
 			want: []string{`cat.csv:2: column "site": value "north" is not a number; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)`}},
 		{id: "T3", name: "log of a negative value", args: []string{"run"}, setup: writeTermsData,
 			plan: termsEdit("[site, x]", "[site, {column: x, log: true}]"), code: 1,
-			want: []string{`T3.yaml:6:20: predictors[1]: data line 7: column "x": log(-0.5) is undefined: the value is not positive (state a shift for zeros: log: {shift: 1})`}},
+			want: []string{`T3.yaml:6:20: predictors[1]: data line 7: column "x": log(-0.5) is undefined: the value is negative, and a logarithm needs positive values (data cat.csv, outcome "y")`}},
 		{id: "T4", name: "interaction with a term not in the plan", args: []string{"check"}, setup: writeTermsData,
 			plan: termsEdit("[site, x]", "[site, x, {interact: [site, age]}]"), code: 1,
 			want: []string{`predictors[2].interact[1]: "age" is not a term listed before this interaction in predictors`}},

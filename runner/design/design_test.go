@@ -245,6 +245,11 @@ func TestBuildErrors(t *testing.T) {
 	if err == nil || !strings.Contains(err.Error(), "predictors[0]: data line 4: column \"x\": log(-3) is undefined") {
 		t.Errorf("log of a negative value: %v", err)
 	}
+	_, err = Build(Spec{Sources: num, Terms: []TermSpec{{Name: "x.log", Source: "x", Key: "predictors[0]", Transform: Transform{Log: true}}}},
+		[]float64{1, 0, 2, -5, 0}, 5, nil, []int{2, 3, 4, 5, 6})
+	if want := `predictors[0]: data line 3: column "x": log(0) is undefined: the value is not positive (state a shift for zeros: log: {shift: 1}); 2 more rows used have such values`; err == nil || err.Error() != want {
+		t.Errorf("log of zeros and a negative value: %v, want %s", err, want)
+	}
 	cat := []Source{{Name: "f", Cat: &Categorical{Levels: []string{"a", "b", "c"}}}}
 	_, err = Build(Spec{Sources: cat, Terms: []TermSpec{{Name: "f", Source: "f", Key: "predictors[1]"}}}, []float64{0, 1, 0}, 3, nil, nil)
 	if err == nil || !strings.Contains(err.Error(), `level "c" is declared but occurs in no row used`) {

@@ -25,6 +25,15 @@ func (d *Design) buildNumeric(t *Term, column string, v, w []float64, lines []in
 			if lines != nil {
 				line = lines[i]
 			}
+			more := 0 // the other rows the transformation cannot take
+			for _, z := range v[i+1:] {
+				if _, m := pre(tr, z); m != "" {
+					more++
+				}
+			}
+			if more > 0 {
+				msg += fmt.Sprintf("; %d more rows used have such values", more)
+			}
 			return &Error{Key: t.Key, Line: line, Column: column, Msg: msg}
 		}
 		u[i] = y
@@ -89,6 +98,9 @@ func pre(tr Transform, x float64) (float64, string) {
 		if !(y > 0) {
 			if tr.Shift != 0 {
 				return 0, fmt.Sprintf("log(%s + %s) is undefined: the value plus the shift is not positive", fmtNum(x), fmtNum(tr.Shift))
+			}
+			if x < 0 {
+				return 0, fmt.Sprintf("log(%s) is undefined: the value is negative, and a logarithm needs positive values", fmtNum(x))
 			}
 			return 0, fmt.Sprintf("log(%s) is undefined: the value is not positive (state a shift for zeros: log: {shift: 1})", fmtNum(x))
 		}
