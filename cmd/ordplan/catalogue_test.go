@@ -1069,6 +1069,36 @@ func catalogue(dir string) (items []badInput) {
 			args: []string{"power", "--n", "100", "--replicates", "2", "--out", filepath.Join(dir, "O6-power")}, code: 1, plan: goodPlan + assumed("{a: 0.2}", ""),
 			want: []string{"O6-power: it holds the outputs of ordplan run or rehearse (its run.json says so); ordplan power does not replace or remove them: give another --out, or move them away"}},
 			"O6-power", "run.json", `{"program": "ordplan", "outputs_sha256": {}}`+"\n"),
+		// A rerun into a folder of an earlier run whose outputs it would
+		// change (new data, an edited plan): the earlier run is kept whole.
+		{id: "O9", name: "a rerun into the folder of an earlier run with other outputs", args: []string{"run"}, plan: goodPlan, code: 0,
+			setup: func(t *testing.T, dir, id string) {
+				os.MkdirAll(filepath.Join(dir, "O9-out"), 0o755)
+				os.WriteFile(filepath.Join(dir, "O9-out", "report.md"), []byte("the earlier run's report\n"), 0o644)
+				os.WriteFile(filepath.Join(dir, "O9-out", "run.json"), []byte(`{"program": "ordplan", "version": "0.1.0", "made_by": "run", "plan": {"sha256": "0"}, "data": {"sha256": "0"}, "outputs_sha256": {"report.md": "`+sha256Hex([]byte("the earlier run's report\n"))+`"}}`+"\n"), 0o644)
+			},
+			want: []string{"report: O9-out/report.html"},
+			check: func(t *testing.T, dir, out, errs string) {
+				errs = strings.ReplaceAll(errs, dir+string(filepath.Separator), "")
+				for _, w := range []string{"ordplan run: output folder O9-out held an earlier run whose outputs differ from this run's (the plan changed and the data changed); kept them in O9-out/earlier/", " (--previous O9-out/earlier/"} {
+					if !strings.Contains(errs, w) {
+						t.Errorf("want %q on stderr:\n%s", w, errs)
+					}
+				}
+				kept, _ := filepath.Glob(filepath.Join(dir, "O9-out", "earlier", "*", "report.md"))
+				if len(kept) != 1 {
+					t.Fatalf("kept reports %v", kept)
+				}
+				if b, _ := os.ReadFile(kept[0]); string(b) != "the earlier run's report\n" {
+					t.Errorf("kept report %q", b)
+				}
+				if _, err := os.Stat(filepath.Join(filepath.Dir(kept[0]), "run.json")); err != nil {
+					t.Errorf("the earlier run.json is not kept: %v", err)
+				}
+				if b, _ := os.ReadFile(filepath.Join(dir, "O9-out", "report.md")); !strings.HasPrefix(string(b), "# ") {
+					t.Errorf("the new report is not in place: %.40q", b)
+				}
+			}},
 
 		// The queue.
 		{id: "Q1", name: "queue without the shared secret", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-secret-file", ""}, code: 2,

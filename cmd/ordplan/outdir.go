@@ -233,9 +233,24 @@ func writeOutputs(lock *outputLock, dir string, files map[string][]byte, record 
 		return usersFilesError(dir, mine)
 	}
 	stale := staleOutputs(dir, all)
+	replaced := replacedOutputs(dir, all)
 	return lock.commit(func() error {
+		kept := ""
+		if len(replaced) > 0 {
+			var err error
+			if kept, err = keepEarlier(dir, replaced); err != nil {
+				return err
+			}
+		}
 		if err := writeFiles(dir, names, all); err != nil {
+			if kept != "" {
+				os.RemoveAll(kept) // the earlier run is still in place
+			}
 			return err
+		}
+		if kept != "" && lock != nil && lock.w != nil {
+			fmt.Fprintf(lock.w.stderr, "ordplan %s: output folder %s held an earlier run whose outputs differ from this run's (%s); kept them in %s (--previous %s lists what changed)\n",
+				lock.w.command, dir, recordChange(kept, all[recordFile]), kept, kept)
 		}
 		// Files the previous run listed and this one does not write (the
 		// predictions of an outcome no longer predicted) would sit beside
@@ -439,4 +454,133 @@ func usersFiles(dir string, names []string, files map[string][]byte) []string {
 func sha256Hex(b []byte) string {
 	sum := sha256.Sum256(b)
 	return hex.EncodeToString(sum[:])
+}
+
+// earlierFolder is the folder inside an output folder where a run keeps an
+// earlier run's outputs that it would replace with other contents or
+// remove (keepEarlier), one subfolder per earlier run.
+const earlierFolder = "earlier"
+
+// replacedOutputs lists the outputs that the run.json in dir records, that
+// are still as it recorded them, and that writing all would lose: replaced
+// by other bytes, or no longer written (removed as stale). Empty when the
+// run writes every recorded output with the same bytes (a rerun of the
+// same program, plan and data), so that such a rerun keeps nothing.
+func replacedOutputs(dir string, all map[string][]byte) []string {
+	prev := previousOutputs(dir)
+	var out []string
+	for n, h := range prev {
+		if n != filepath.Base(n) || strings.HasPrefix(n, ".") || n == recordFile {
+			continue
+		}
+		if c, ok := all[n]; ok && sha256Hex(c) == h {
+			continue
+		}
+		fi, err := os.Lstat(filepath.Join(dir, n))
+		if err != nil || !fi.Mode().IsRegular() {
+			continue
+		}
+		if c, err := os.ReadFile(filepath.Join(dir, n)); err == nil && sha256Hex(c) == h {
+			out = append(out, n)
+		}
+	}
+	if len(out) == 0 {
+		return nil
+	}
+	// The earlier run's other outputs go with them, so that the kept
+	// folder is that run whole, with its record.
+	out = out[:0]
+	for n, h := range prev {
+		if n != filepath.Base(n) || strings.HasPrefix(n, ".") || n == recordFile {
+			continue
+		}
+		if c, err := os.ReadFile(filepath.Join(dir, n)); err == nil && sha256Hex(c) == h {
+			out = append(out, n)
+		}
+	}
+	sort.Strings(out)
+	return append(out, recordFile)
+}
+
+// keepEarlier keeps the earlier run's files names (its run.json last) in
+// dir/earlier/TIME, TIME the UTC time its run.json was written
+// (20261203T183114Z, with -2, -3 ... when taken): linked where the file
+// system allows, else copied, into a temporary folder renamed into place
+// once complete. It returns the folder's path.
+func keepEarlier(dir string, names []string) (string, error) {
+	base := filepath.Join(dir, earlierFolder)
+	if err := os.MkdirAll(base, 0o755); err != nil {
+		return "", fmt.Errorf("output folder %s: cannot keep the earlier run's outputs in %s: %w", dir, base, err)
+	}
+	stamp := "earlier-run"
+	if fi, err := os.Stat(filepath.Join(dir, recordFile)); err == nil {
+		stamp = fi.ModTime().UTC().Format("20060102T150405Z")
+	}
+	tmp, err := os.MkdirTemp(base, "."+stamp+".tmp-")
+	if err != nil {
+		return "", fmt.Errorf("output folder %s: cannot keep the earlier run's outputs in %s: %w", dir, base, err)
+	}
+	for _, n := range names {
+		src, dst := filepath.Join(dir, n), filepath.Join(tmp, n)
+		if os.Link(src, dst) == nil {
+			continue
+		}
+		c, err := os.ReadFile(src)
+		if err == nil {
+			err = os.WriteFile(dst, c, 0o644)
+		}
+		if err != nil {
+			os.RemoveAll(tmp)
+			return "", fmt.Errorf("output folder %s: cannot keep the earlier run's %s in %s: %w", dir, n, base, err)
+		}
+	}
+	for i := 1; ; i++ {
+		kept := filepath.Join(base, stamp)
+		if i > 1 {
+			kept += "-" + strconv.Itoa(i)
+		}
+		if _, err := os.Lstat(kept); err == nil {
+			continue
+		}
+		if err := os.Rename(tmp, kept); err != nil {
+			os.RemoveAll(tmp)
+			return "", fmt.Errorf("output folder %s: cannot keep the earlier run's outputs in %s: %w", dir, kept, err)
+		}
+		return kept, nil
+	}
+}
+
+// recordChange says what differs between the run.json kept in kept and
+// the new record: the plan, the data, the program (each by its SHA-256 or
+// version), or, when none of these, that the same inputs gave other
+// outputs.
+func recordChange(kept string, record []byte) string {
+	type inputs struct {
+		Version string `json:"version"`
+		Plan    struct {
+			SHA256 string `json:"sha256"`
+		} `json:"plan"`
+		Data struct {
+			SHA256 string `json:"sha256"`
+		} `json:"data"`
+	}
+	var was, now inputs
+	b, err := os.ReadFile(filepath.Join(kept, recordFile))
+	if err != nil || json.Unmarshal(b, &was) != nil || json.Unmarshal(record, &now) != nil {
+		return "its record could not be read"
+	}
+	var changed []string
+	if was.Plan.SHA256 != now.Plan.SHA256 {
+		changed = append(changed, "the plan changed")
+	}
+	if was.Data.SHA256 != now.Data.SHA256 {
+		changed = append(changed, "the data changed")
+	}
+	if was.Version != now.Version {
+		changed = append(changed, "the program changed ("+was.Version+" -> "+now.Version+")")
+	}
+	if len(changed) == 0 {
+		return "same plan, data and program version; another command line or environment"
+	}
+	return words.AndList(changed)
 }

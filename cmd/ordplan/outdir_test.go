@@ -222,11 +222,12 @@ func folderNames(t *testing.T, dir string) []string {
 }
 
 // An interrupt that arrives while the outputs are written is held until
-// the whole folder is changed: this run's files in place and the earlier
-// run's outputs it no longer writes (here the predictions of an outcome
-// no longer predicted) removed, so that the folder holds exactly what the
-// new run.json lists, and no temporary file. Then it stops the command
-// with a line saying so.
+// the whole folder is changed: the earlier run, whose outputs this one
+// changes, kept in earlier/TIME (O9), this run's files in place and the
+// earlier run's outputs it no longer writes (here the predictions of an
+// outcome no longer predicted) removed, so that the folder holds exactly
+// what the new run.json lists, the kept run and no temporary file. Then
+// it stops the command with a line saying so.
 func TestInterruptHeldDuringWrite(t *testing.T) {
 	stops := catchInterrupts(t)
 	dir := t.TempDir()
@@ -258,13 +259,28 @@ func TestInterruptHeldDuringWrite(t *testing.T) {
 	}
 	msg := stoppedWith(t, stops, &stderr)
 	l.Unlock()
-	if want := "ordplan run: interrupted while writing its outputs, and stopped once they were all in place; output folder " + dir + ": this run's complete outputs, as its run.json lists them\n"; msg != want {
+	kept, _ := filepath.Glob(filepath.Join(dir, earlierFolder, "*"))
+	if len(kept) != 1 {
+		t.Fatalf("kept earlier runs: %v", kept)
+	}
+	if want := "ordplan run: output folder " + dir + " held an earlier run whose outputs differ from this run's (same plan, data and program version; another command line or environment); kept them in " + kept[0] + " (--previous " + kept[0] + " lists what changed)\n" +
+		"ordplan run: interrupted while writing its outputs, and stopped once they were all in place; output folder " + dir + ": this run's complete outputs, as its run.json lists them\n"; msg != want {
 		t.Errorf("stderr %q, want %q", msg, want)
 	}
 	rec := previousOutputs(dir)
 	names := folderNames(t, dir)
-	if !slices.Equal(names, []string{"report.md", "run.json"}) || len(rec) != 1 || rec["report.md"] != sha256Hex(second["report.md"]) {
+	if !slices.Equal(names, []string{earlierFolder, "report.md", "run.json"}) || len(rec) != 1 || rec["report.md"] != sha256Hex(second["report.md"]) {
 		t.Errorf("the folder holds %v; run.json lists %v", names, rec)
+	}
+	// The earlier run is kept whole: its two outputs, as written, and its
+	// record.
+	if got := folderNames(t, kept[0]); !slices.Equal(got, []string{"predictions-safety.csv", "report.md", "run.json"}) {
+		t.Errorf("kept %v", got)
+	}
+	for n, c := range first {
+		if b, _ := os.ReadFile(filepath.Join(kept[0], n)); !bytes.Equal(b, c) {
+			t.Errorf("kept %s: %q, want %q", n, b, c)
+		}
 	}
 	// The next run into the folder is not refused.
 	l, err = claimOutput(dir, "run", []string{"report.md"}, io.Discard)
