@@ -123,6 +123,8 @@ func (d *decoder) dataHeader(p *Plan) ([]string, bool) {
 	if err != nil {
 		if where, reason, unopened := notOpened(err, p.Data.Path, p.Data.File); unopened {
 			d.errAt("data.file", "cannot open the data file %s%s: %s", strconv.Quote(p.Data.File), where, reason)
+		} else {
+			d.reportDialect(p.Data.Path, "data file "+p.Data.File, p.Data.Dialect())
 		}
 		return nil, false
 	}

@@ -160,14 +160,10 @@ func (r *reader) header(cols []usedCol) error {
 	for i := range cols {
 		j, ok := where[cols[i].name]
 		if !ok {
-			e := r.fail(0, cols[i].name, "%s column not found in the header; available columns: %s",
-				cols[i].role, quoteList(names))
 			// A header read whole as one name is most often a file in
 			// another dialect than the one asked for: say which.
-			if hint := SuggestDialect(r.head, r.opt.Dialect); r.head != nil && hint != "" {
-				e.Msg += "; " + hint
-			}
-			return e
+			return r.dialectHint(r.fail(0, cols[i].name, "%s column not found in the header; available columns: %s",
+				cols[i].role, quoteList(names)))
 		}
 		cols[i].index = j
 	}
@@ -187,7 +183,9 @@ func (r *reader) names() ([]string, map[string]int, error) {
 		return nil, nil, &Error{File: r.file, Msg: "file is empty (a header line naming the columns is needed)"}
 	}
 	if err != nil {
-		return nil, nil, r.csvErr(err, hdr)
+		// Quoted names in another dialect (a semicolon file's "a";"b"
+		// read as comma-separated) break the header's quoting.
+		return nil, nil, r.dialectHint(r.csvErr(err, hdr))
 	}
 	line, _ := r.cr.FieldPos(0)
 	r.width = len(hdr)
@@ -208,6 +206,15 @@ func (r *reader) names() ([]string, map[string]int, error) {
 		names[i] = n
 	}
 	return names, where, nil
+}
+
+// dialectHint is e with, when the first lines of the CSV text look
+// written in another dialect than the one asked for, which one.
+func (r *reader) dialectHint(e *Error) *Error {
+	if hint := SuggestDialect(r.head, r.opt.Dialect); r.head != nil && hint != "" {
+		e.Msg += "; " + hint
+	}
+	return e
 }
 
 // Header reads only the header line of the CSV file at path and returns
