@@ -4,6 +4,7 @@ import (
 	"os"
 	"path/filepath"
 	"slices"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -130,5 +131,29 @@ func TestCommaInNumberMessage(t *testing.T) {
 		if _, msg := (Dialect{}).number(cell); msg != want {
 			t.Errorf("%s: %s\nwant %s", cell, msg, want)
 		}
+	}
+}
+
+// Numbers as data write them, and texts that only Go source reads as
+// numbers: digit separators and hexadecimal floats are refused (strconv
+// reads 0x1p3 as 8); a percentage is refused with what it is.
+func TestNumberForms(t *testing.T) {
+	for cell, want := range map[string]float64{"+1.5": 1.5, "-2e3": -2000, "1E-2": 0.01, ".5": 0.5, "5.": 5} {
+		if v, msg := (Dialect{}).number(cell); msg != "" || v != want {
+			t.Errorf("%q: %v %q, want %v", cell, v, msg, want)
+		}
+	}
+	for _, cell := range []string{"0x1p3", "0X1P-2", "1_000", "0x10"} {
+		if _, msg := (Dialect{}).number(cell); msg != "value "+strconv.Quote(cell)+" is not a number" {
+			t.Errorf("%q: %q", cell, msg)
+		}
+	}
+	_, err := Read(strings.NewReader("y,a\n1,0x1p3\n2,1\n"), "h.csv", Options{Outcome: "y", Predictors: []string{"a"}})
+	if err == nil || err.Error() != `h.csv:2: column "a": value "0x1p3" is not a number` {
+		t.Errorf("hexadecimal: %v", err)
+	}
+	_, err = Read(strings.NewReader("y,a\n1,50%\n2,1\n"), "p.csv", Options{Outcome: "y", Predictors: []string{"a"}})
+	if err == nil || err.Error() != `p.csv:2: column "a": value "50%" is not a number; it is a percentage: write it as a number without the percent sign (50, or 0.5 as a share)` {
+		t.Errorf("percentage: %v", err)
 	}
 }

@@ -10,7 +10,9 @@ import (
 // parseNumber parses a trimmed, non-missing cell as a finite float64.
 // On failure it returns a message describing the problem.
 func parseNumber(cell string) (float64, string) {
-	if strings.ContainsRune(cell, '_') {
+	if strings.ContainsAny(cell, "_xX") {
+		// Digit separators and hexadecimal numbers (0x1p3), which
+		// strconv reads as Go source writes them, are no data's numbers.
 		return 0, "value " + quoteCell(cell) + " is not a number"
 	}
 	v, err := strconv.ParseFloat(cell, 64)

@@ -314,6 +314,8 @@ func notNumberHint(cell, msg string) string {
 	switch {
 	case timeHint(cell) != "":
 		return timeHint(cell)
+	case isNumberLike(cell) && strings.HasSuffix(cell, "%"):
+		return "; it is a percentage: write it as a number without the percent sign (50, or 0.5 as a share)"
 	case isNumberLike(cell):
 		return ""
 	case formulaHint(cell) != "":
