@@ -105,6 +105,32 @@ func writeCellsData(t *testing.T, dir, _ string) {
 	}
 }
 
+// writeCodesData writes codes.csv: 60 rows of y, grade (1, 2, 3) and x,
+// with grade 2 written "2.0" on line 4 (an export writing a code as a decimal), and
+// sites.csv: the same with site, "North" for the level "north" on line 3.
+func writeCodesData(t *testing.T, dir, _ string) {
+	t.Helper()
+	var b, c strings.Builder
+	b.WriteString("y,grade,x\n")
+	c.WriteString("y,site,x\n")
+	for i := 0; i < 60; i++ {
+		grade, site := fmt.Sprint(1+i%3), []string{"north", "east", "south"}[i%3]
+		if i == 2 {
+			grade = "2.0"
+		}
+		if i == 1 {
+			site = "North"
+		}
+		fmt.Fprintf(&b, "%d,%s,%d\n", 1+(i*7+i/5)%3, grade, i%7)
+		fmt.Fprintf(&c, "%d,%s,%d\n", 1+(i*7+i/5)%3, site, i%7)
+	}
+	for name, body := range map[string]string{"codes.csv": b.String(), "sites.csv": c.String()} {
+		if err := os.WriteFile(filepath.Join(dir, name), []byte(body), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+}
+
 func btoi(b bool) int {
 	if b {
 		return 1
@@ -182,6 +208,17 @@ func termItems(dir string) []badInput {
 		{id: "T19", name: "an interaction of categorical predictors with a combination of levels no row has", args: []string{"check"}, setup: writeCellsData,
 			plan: termsEdit("cat.csv", "cells.csv", "south]}\n", "south]}\n  grade: {levels: [lo, hi]}\n", "[site, x]", "[site, grade, x, {interact: [site, grade]}]"), code: 1,
 			want: []string{`T19.yaml:7:30: predictors[3]: term "site&grade": its column "site.south&grade.hi" is 0 in every row used: no row used has site "south" with grade "hi", so the interaction cannot be estimated for every combination of levels; leave the interaction out, or merge levels or restrict the rows (subset) so that every combination has rows (data cells.csv, outcome "y")` + "\n"}},
+		{id: "T20", name: "a level in the data written otherwise than the plan writes it (a number, another case)", args: []string{"check"}, setup: writeCodesData,
+			plan: termsEdit("cat.csv", "codes.csv", "site: {levels: [north, east, south]}", "grade: {levels: [1, 2, 3]}", "[site, x]", "[grade, x]"), code: 1,
+			want: []string{`codes.csv:4: column "grade": value "2.0" is not one of the declared levels of this categorical predictor: "1", "2", "3" (it is the level "2" written otherwise; a level is read only as the plan writes it: write the levels as the data do) (plan T20.yaml, outcome "y", plan key categorical.grade)` + "\n"},
+			check: func(t *testing.T, dir, out, errs string) {
+				p := filepath.Join(dir, "T20b.yaml")
+				os.WriteFile(p, []byte(termsEdit("cat.csv", "sites.csv")), 0o644)
+				_, e, code := runCLI("check", p)
+				if want := `sites.csv:3: column "site": value "North" is not one of the declared levels of this categorical predictor: "north", "east", "south" (it is the level "north" written otherwise; a level is read only as the plan writes it: write the levels as the data do)`; code != 1 || !strings.Contains(e, want) {
+					t.Errorf("a level in another case: exit %d\n%s\nwant %s", code, e, want)
+				}
+			}},
 		{id: "T14", name: "a subset that leaves out a declared level", args: []string{"check", "--no-data"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: site, none_of: [south]}\npredictors:"), code: 1,
 			want: []string{`T14.yaml:7:5: subset[0]: leaves out the rows of level "south" of site, which categorical.site declares: no row used has it, so its column cannot be estimated; remove the level from categorical.site.levels (rows outside the subset may keep it) or set categorical.site.unobserved: drop` + "\n"}},

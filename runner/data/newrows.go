@@ -104,7 +104,11 @@ func LoadRowsMissing(path string, predictors []string, levels map[string][]strin
 					}
 				}
 				if l < 0 {
-					msg = "value " + quoteCell(cell) + " is not one of the declared levels of this categorical predictor: " + quoteList(lv) + formulaHint(cell)
+					hint := formulaHint(cell)
+					if hint == "" {
+						hint = levelHint(cell, lv, "write the new rows' values as the levels are written")
+					}
+					msg = "value " + quoteCell(cell) + " is not one of the declared levels of this categorical predictor: " + quoteList(lv) + hint
 				}
 				v = float64(l)
 			} else {

@@ -277,6 +277,9 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 				if !ok {
 					hint := formulaHint(cell)
 					if hint == "" {
+						hint = levelHint(cell, opt.PredictorLevels[c.name], "write the levels as the data do")
+					}
+					if hint == "" {
 						hint = " (add it to the levels, or list it among the missing-value markers)"
 					}
 					msg = "value " + quoteCell(cell) + " is not one of the declared levels of this categorical predictor: " + quoteList(opt.PredictorLevels[c.name]) + hint
@@ -778,6 +781,30 @@ func CheckListValues(file string, opt Options, seen ListValues) ([]string, error
 		}
 	}
 	return notes, nil
+}
+
+// levelHint says, of a cell that is no declared level, the level it is
+// written like: the same number written otherwise ("2.0", " 2" for "2"), or
+// the same letters and digits in another case or with other spaces and
+// marks ("East" for "east"); "" when it is like none. remedy ends the
+// hint: what to change.
+func levelHint(cell string, levels []string, remedy string) string {
+	like := func(l string) string {
+		return " (it is the level " + strconv.Quote(l) + " written otherwise; a level is read only as the plan writes it: " + remedy + ")"
+	}
+	if x, err := strconv.ParseFloat(strings.TrimSpace(cell), 64); err == nil {
+		for _, l := range levels {
+			if y, err := strconv.ParseFloat(strings.TrimSpace(l), 64); err == nil && x == y {
+				return like(l)
+			}
+		}
+	}
+	for _, l := range levels {
+		if k := LooseText(l); k != "" && k == LooseText(cell) {
+			return like(l)
+		}
+	}
+	return ""
 }
 
 // LooseText is s in lower case with only its letters and digits: two
