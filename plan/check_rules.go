@@ -97,6 +97,23 @@ func (d *decoder) checkRules(p *Plan) {
 // checkTestRule refuses a test rule that would test nothing, or whose test
 // is not defined for some pair it compares.
 func (d *decoder) checkTestRule(p *Plan, r Rule, at string) {
+	// Each structure applies_to names must be one the rule can test (then
+	// the rule's pairs are not judged again).
+	named := false
+	for i, e := range r.AppliesTo {
+		key := itemPath(at+".applies_to", i)
+		switch {
+		case !p.Models.HasEffects(e):
+			d.errAt(key, "%s is not in models.effects (%s): the rule would test no such model", quote(e.String()), joinWords(p.Models.Effects))
+			named = true
+		case len(lessConstrained[e]) == 0:
+			d.errAt(key, "%s effects are the least constrained: no model is less constrained to test them against", quote(e.String()))
+			named = true
+		}
+	}
+	if named {
+		return
+	}
 	pairs := p.TestPairs(r)
 	if len(pairs) == 0 {
 		what := "models.effects (" + joinWords(p.Models.Effects) + ")"

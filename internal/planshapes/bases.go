@@ -67,7 +67,7 @@ tests: {parallel_lines: [brant, lr, score, wald, wolfe_gould], alpha: 0.1}
 rules:
   - reject_unconverged: true
   - reject_negative_probabilities: true
-  - reject_if_test_rejects: {test: lr, alpha: 0.01, against: each_less_constrained, applies_to: [parallel, partial]}
+  - reject_if_test_rejects: {test: lr, alpha: 0.01, against: each_less_constrained, applies_to: [parallel]}
   - reject_if_simpler_is_close: {max_difference: 0.02, grid: {age: [30, 50, 70], dose: [1]}}
   - reject_if_sparse: {per_parameter: 10, smallest_category: 5, within: site}
   - reject_if_unstable: {max_condition: 1e8, min_starts_agreeing: 2}
