@@ -83,11 +83,15 @@ func (src *source) recessionDirection(r *Result, ly *layout, theta []float64, ll
 	if !suspect && float64(d.N())*perRow*V*V > 50*lpEveryFit {
 		return nil // not even the distinct rows are worth finding
 	}
-	rows := distinctRows(d)
-	size := float64(len(rows)) * perRow * V
-	switch {
-	case size*V <= lpEveryFit:
-	case !suspect, size*V > lpSuspect, size > lpMemory:
+	// The most distinct rows the programme may take: beyond them, nothing
+	// is worth finding (every row of a million with continuous predictors
+	// is distinct).
+	most := lpEveryFit / (perRow * V * V)
+	if suspect {
+		most = math.Max(most, math.Min(lpSuspect/(perRow*V*V), lpMemory/(perRow*V)))
+	}
+	rows := distinctRows(d, int(most))
+	if rows == nil {
 		return nil
 	}
 	moves := []groupMove{phiHeld}
@@ -111,8 +115,9 @@ func (src *source) recessionDirection(r *Result, ly *layout, theta []float64, ll
 }
 
 // distinctRows returns one row index for each distinct pair of category
-// and predictor values among the rows of positive weight, in row order.
-func distinctRows(d *Data) []int {
+// and predictor values among the rows of positive weight, in row order, or
+// nil as soon as there are more than most of them.
+func distinctRows(d *Data, most int) []int {
 	K := len(d.Predictors)
 	seen := map[uint64][]int{}
 	var out []int
@@ -127,18 +132,14 @@ func distinctRows(d *Data) []int {
 		}
 		return true
 	}
+	const offset, prime = 14695981039346656037, 1099511628211 // FNV-1a
 	for i, y := range d.Y {
 		if d.weight(i) <= 0 {
 			continue
 		}
-		h := uint64(14695981039346656037)
-		mix := func(v uint64) {
-			h ^= v
-			h *= 1099511628211
-		}
-		mix(uint64(y))
+		h := (offset ^ uint64(y)) * prime
 		for k := 0; k < K; k++ {
-			mix(math.Float64bits(d.at(i, k)))
+			h = (h ^ math.Float64bits(d.at(i, k))) * prime
 		}
 		dup := false
 		for _, j := range seen[h] {
@@ -148,6 +149,9 @@ func distinctRows(d *Data) []int {
 			}
 		}
 		if !dup {
+			if len(out) == most {
+				return nil
+			}
 			seen[h] = append(seen[h], i)
 			out = append(out, i)
 		}
@@ -308,23 +312,30 @@ func recessionRows(d *Data, rows []int, m Model, ly *layout, vars []lpVariable) 
 }
 
 // recessionRange is the equations lo..hi-1 whose F or 1 - F the
-// probability of category c carries (as the kernels' tailRange; the
-// cumulative difference reads two).
+// probability of category c carries: the cumulative difference reads two,
+// the adjacent ratios all, stage and stacked models their kernel's
+// tailRange.
 func recessionRange(m Model, c, q int) (lo, hi int) {
-	switch {
-	case m.Comparison == Cumulative:
+	switch m.Comparison {
+	case Cumulative:
 		return max(c-1, 0), min(c+1, q)
-	case m.Comparison == Adjacent, m.Comparison == stackedBinary:
+	case Adjacent:
 		return 0, q
-	case m.Backward:
-		return max(c-1, 0), q
 	}
-	return 0, min(c+1, q)
+	k := kernel{cmp: m.Comparison, backward: m.Backward, nEq: q}
+	return k.tailRange(c)
 }
 
 // recessionLP returns a direction d (in the variables' own units) with
 // M d >= 0 and M d != 0, or nil when none exists (or the programme did
-// not settle). M's last row holds the column scales (recessionRows).
+// not settle). The rows of M are in the variables' scaled units; M.scale
+// holds the scales (recessionRows).
+//
+// Written here rather than through gonum's optimize/convex/lp: its
+// Simplex returns the primal optimum only, while the direction is the
+// dual solution, and posing the dual there puts about R + V rows in a
+// dense basis factorized at every pivot (R, the inequalities, runs to
+// thousands); the revised simplex below keeps a V x V basis.
 //
 // It solves by the revised simplex method the programme
 //

@@ -2,6 +2,7 @@ package fit
 
 import (
 	"math"
+	"slices"
 	"testing"
 )
 
@@ -47,7 +48,7 @@ func TestSeparationFoundByProgramme(t *testing.T) {
 	}
 	theta := make([]float64, len(ly.params))
 	vars := lpVariables(ly, theta, m, phiHeld)
-	dir := recessionLP(recessionRows(d, distinctRows(d), m, ly, vars))
+	dir := recessionLP(recessionRows(d, distinctRows(d, math.MaxInt), m, ly, vars))
 	want := []float64{0, 0, 0, -1, 1, 0, 0} // R lpSolve
 	if len(dir) != len(want) {
 		t.Fatalf("direction %v, want a multiple of %v (R lpSolve)", dir, want)
@@ -87,7 +88,7 @@ func TestProgrammeAgainstLPSolve(t *testing.T) {
 			t.Fatal(err)
 		}
 		vars := lpVariables(ly, make([]float64, len(ly.params)), m, phiHeld)
-		M := recessionRows(d, distinctRows(d), m, ly, vars)
+		M := recessionRows(d, distinctRows(d, math.MaxInt), m, ly, vars)
 		dir := recessionLP(M)
 		if (dir != nil) != c.found {
 			t.Errorf("%s: direction %v, want one: %v (R lpSolve)", m.Name(), dir, c.found)
@@ -111,5 +112,23 @@ func TestProgrammeAgainstLPSolve(t *testing.T) {
 		if !(most > 1e-6) {
 			t.Errorf("%s: the direction raises no row (largest %g)", m.Name(), most)
 		}
+	}
+}
+
+// distinctRows stops as soon as the rows outnumber what the programme may
+// take: a million rows of continuous predictors are not all hashed to be
+// thrown away. Counted by hand: 6 rows, 3 distinct (two repeats, one row of
+// weight 0).
+func TestDistinctRowsStopsAtMost(t *testing.T) {
+	d := &Data{J: 2, Y: []int{0, 1, 0, 0, 1, 1}, X: []float64{1, 2, 1, 3, 2, 4}, Predictors: []string{"x"},
+		Weights: []float64{1, 1, 1, 1, 1, 0}}
+	if got := distinctRows(d, math.MaxInt); !slices.Equal(got, []int{0, 1, 3}) {
+		t.Errorf("distinct rows %v, want [0 1 3]", got)
+	}
+	if got := distinctRows(d, 3); !slices.Equal(got, []int{0, 1, 3}) {
+		t.Errorf("at most 3: %v, want [0 1 3]", got)
+	}
+	if got := distinctRows(d, 2); got != nil {
+		t.Errorf("at most 2: %v, want nil", got)
 	}
 }
