@@ -1,6 +1,7 @@
 package data
 
 import (
+	"fmt"
 	"os"
 	"path/filepath"
 	"slices"
@@ -155,5 +156,61 @@ func TestNumberForms(t *testing.T) {
 	_, err = Read(strings.NewReader("y,a\n1,50%\n2,1\n"), "p.csv", Options{Outcome: "y", Predictors: []string{"a"}})
 	if err == nil || err.Error() != `p.csv:2: column "a": value "50%" is not a number; it is a percentage: write it as a number without the percent sign (50, or 0.5 as a share)` {
 		t.Errorf("percentage: %v", err)
+	}
+}
+
+// A missing-value code that is a number marks a missing value in a
+// column read as numbers however the file writes the number (-99.00, as a
+// spreadsheet's export of a column shown with two decimals writes -99),
+// through every path: chunks (the fast way included), record by record,
+// a decimal comma, the data dictionary's check and the new rows; a column
+// of levels keeps its texts as written.
+func TestNumericMissingCodes(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("y,a,w,g\n")
+	for i := 0; i < 3000; i++ { // enough lines for several chunks
+		a := strconv.Itoa(i % 7)
+		switch i % 500 {
+		case 17:
+			a = "-99.00"
+		case 18:
+			a = "-99"
+		case 19:
+			a = "-9.9e1"
+		}
+		fmt.Fprintf(&b, "%d,%s,1.0,%s\n", 1+i%3, a, []string{"p", "q", "-99"}[i%3])
+	}
+	in := b.String()
+	opt := Options{Outcome: "y", Predictors: []string{"a"}, Weights: "w", MissingTokens: []string{"", "-99"}}
+	for name, read := range map[string]func(string, Options) (*Dataset, error){
+		"Read":       func(s string, o Options) (*Dataset, error) { return Read(strings.NewReader(s), "m.csv", o) },
+		"ReadStream": func(s string, o Options) (*Dataset, error) { return ReadStream(strings.NewReader(s), "m.csv", o) },
+	} {
+		d, err := read(in, opt)
+		if err != nil || d.RowsDropped != 18 || d.N != 2982 {
+			t.Errorf("%s: %v, dropped %d of %d", name, err, d.RowsDropped, d.RowsRead)
+		}
+		semi := strings.NewReplacer(",", ";", ".", ",").Replace(in)
+		sopt := opt
+		sopt.Dialect = Dialect{Delimiter: ';', DecimalComma: true}
+		if d, err := read(semi, sopt); err != nil || d.RowsDropped != 18 {
+			t.Errorf("%s, decimal comma: %v, dropped %d", name, err, d.RowsDropped)
+		}
+		// A column's own code; levels keep their texts.
+		lopt := Options{Outcome: "y", Predictors: []string{"a", "g"}, PredictorLevels: map[string][]string{"g": {"p", "q"}}, ColumnMissing: map[string][]string{"a": {"-99"}, "g": {"-99"}}}
+		if d, err := read(in, lopt); err != nil || d.RowsDropped != 1000+12 {
+			t.Errorf("%s, column codes: %v, dropped %d", name, err, d.RowsDropped)
+		}
+	}
+	dir := t.TempDir()
+	path := filepath.Join(dir, "m.csv")
+	os.WriteFile(path, []byte(in), 0o644)
+	err := ValidateDialect(path, []Rule{{Column: "a", Key: "dictionary.a", Numeric: true, Range: []float64{0, 10}, Missing: []string{"-99"}}}, nil, Dialect{})
+	if err != nil {
+		t.Errorf("the dictionary's check: %v", err)
+	}
+	rows, err := LoadRowsMissing(path, []string{"a"}, nil, "", []string{"", "-99"}, nil, Dialect{})
+	if err != nil || len(rows.Skipped) != 18 {
+		t.Errorf("new rows: %v, skipped %d", err, len(rows.Skipped))
 	}
 }

@@ -287,7 +287,7 @@ func (r *reader) fastRow(p *fastPlan, t *rowTally, s string, i, hi int, x []floa
 		case fastCluster:
 			row.cl = cell
 		}
-		if !ok || f.check && r.missingIn(f.name, cell) {
+		if !ok || f.check && (r.missingText(f.name, cell) || r.missingNumber(f.name, v)) {
 			return false
 		}
 	}

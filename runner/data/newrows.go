@@ -3,7 +3,6 @@ package data
 import (
 	"bytes"
 	"io"
-	"slices"
 	"strings"
 )
 
@@ -52,8 +51,8 @@ func LoadRowsMissing(path string, predictors []string, levels map[string][]strin
 		return nil, err
 	}
 	hash := HashBytes(raw)
-	r := &reader{file: path, opt: Options{MissingTokens: missingTokens, Dialect: dialect}}
-	missing := r.opt.missingSet()
+	r := &reader{file: path, opt: Options{MissingTokens: missingTokens, ColumnMissing: columnMissing, Dialect: dialect}}
+	r.missing = r.opt.missingSet()
 	if err := r.start(bytes.NewReader(raw)); err != nil {
 		return nil, err
 	}
@@ -72,6 +71,9 @@ func LoadRowsMissing(path string, predictors []string, levels map[string][]strin
 			return nil, &Error{File: path, Column: c, Msg: "column not found in the header; available columns: " + quoteList(head)}
 		}
 		pos[j] = i
+		if _, cat := levels[c]; !cat || j >= len(predictors) {
+			r.readNumbers(c)
+		}
 	}
 	cr := r.cr
 	K := len(predictors)
@@ -90,7 +92,7 @@ func LoadRowsMissing(path string, predictors []string, levels map[string][]strin
 		skip := false
 		for j, c := range cols {
 			cell := strings.TrimSpace(rec[pos[j]])
-			if missing[cell] || slices.Contains(columnMissing[c], cell) {
+			if r.missingIn(c, cell) {
 				skip = true
 				break
 			}

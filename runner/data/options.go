@@ -1,6 +1,7 @@
 package data
 
 import (
+	"slices"
 	"fmt"
 	"strconv"
 	"strings"
@@ -173,8 +174,23 @@ func (o *Options) missingSet() map[string]bool {
 	return m
 }
 
-// missingIn reports whether a trimmed cell of column col is missing.
+// missingIn reports whether a trimmed cell of column col is missing: it
+// is one of the markers, or, in a column read as numbers, its number is
+// one of the markers that are numbers (missingNumber).
 func (r *reader) missingIn(col, cell string) bool {
+	if r.missingText(col, cell) {
+		return true
+	}
+	if r.numCodes[col] == nil {
+		return false
+	}
+	v, msg := r.opt.Dialect.number(cell)
+	return msg == "" && r.missingNumber(col, v)
+}
+
+// missingText reports whether a trimmed cell of column col is one of the
+// missing-value markers as written.
+func (r *reader) missingText(col, cell string) bool {
 	if r.missing[cell] {
 		return true
 	}
@@ -184,6 +200,47 @@ func (r *reader) missingIn(col, cell string) bool {
 		}
 	}
 	return false
+}
+
+// missingNumber reports whether v, a number of column col, is one of the
+// column's missing-value markers that are numbers: a code such as -99
+// marks a missing value however a file writes it (-99.0, -99.00, as a
+// spreadsheet's export of a column shown with decimals writes it), not
+// only as written in the plan.
+func (r *reader) missingNumber(col string, v float64) bool {
+	for _, c := range r.numCodes[col] {
+		if c == v {
+			return true
+		}
+	}
+	return false
+}
+
+// readNumbers notes the columns read as numbers, for missingIn: those of
+// their missing-value markers (data.missing_values and their own) that
+// are numbers in the dialect. Called before the rows are read, on any
+// worker.
+func (r *reader) readNumbers(cols ...string) {
+	for _, col := range cols {
+		var codes []float64
+		add := func(tok string) {
+			if v, msg := r.opt.Dialect.number(strings.TrimSpace(tok)); msg == "" && !slices.Contains(codes, v) {
+				codes = append(codes, v)
+			}
+		}
+		for tok := range r.missing {
+			add(tok)
+		}
+		for _, tok := range r.opt.ColumnMissing[col] {
+			add(tok)
+		}
+		if codes != nil {
+			if r.numCodes == nil {
+				r.numCodes = map[string][]float64{}
+			}
+			r.numCodes[col] = codes
+		}
+	}
 }
 
 // CodedAs returns o set to read the outcome as the whole of data held in

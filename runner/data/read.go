@@ -99,6 +99,9 @@ type reader struct {
 	cols    []usedCol
 	width   int
 	raw     []byte // the whole input, when read before (readBytes)
+	// numCodes: by column read as numbers, its missing-value markers that
+	// are numbers (readNumbers; read only once the rows are read)
+	numCodes map[string][]float64
 	head    []byte // the first bytes of CSV text, for SuggestDialect
 }
 
@@ -168,6 +171,11 @@ func (r *reader) header(cols []usedCol) error {
 		cols[i].index = j
 	}
 	r.cols = cols
+	for _, c := range cols {
+		if c.role == rolePredictor && r.opt.PredictorLevels[c.name] == nil || c.role == roleWeights || c.role == roleOffset {
+			r.readNumbers(c.name)
+		}
+	}
 	return nil
 }
 

@@ -88,6 +88,9 @@ func ValidateDialect(path string, rules []Rule, missingTokens []string, d Dialec
 		if !ok {
 			continue
 		}
+		if ru.Numeric {
+			r.readNumbers(ru.Column)
+		}
 		c := ruled{Rule: ru, index: j}
 		if ru.Values != nil {
 			c.values = map[float64]bool{}
