@@ -1,8 +1,8 @@
 package data
 
 import (
-	"slices"
 	"fmt"
+	"slices"
 	"strconv"
 	"strings"
 )

@@ -102,7 +102,7 @@ type reader struct {
 	// numCodes: by column read as numbers, its missing-value markers that
 	// are numbers (readNumbers; read only once the rows are read)
 	numCodes map[string][]float64
-	head    []byte // the first bytes of CSV text, for SuggestDialect
+	head     []byte // the first bytes of CSV text, for SuggestDialect
 }
 
 func (r *reader) fail(line int, column, format string, args ...any) *Error {
