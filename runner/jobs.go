@@ -74,6 +74,13 @@ func (e *FitEntry) settle(res *fit.Result, err error, step func(*fit.Result) err
 	if res == nil && err == nil {
 		err = errors.New("no result and no error came back for this fit (the executor lost it)")
 	}
+	if res != nil && e.ID != "" {
+		// Messages about the fit (tests that cannot be computed) name it
+		// as the report does: an auxiliary fit by its own id, not by the
+		// candidate of its effect structure, and a backward stage model
+		// as the grid names it.
+		res.Name = e.ID
+	}
 	e.Result = res
 	if err == nil && step != nil && res.OK() {
 		err = step(res)

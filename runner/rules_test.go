@@ -55,6 +55,23 @@ func TestRuleRejectUnconverged(t *testing.T) {
 	if v := verdictOf(or.Rules[1], "cumulative/parallel/logit"); v == nil || !strings.Contains(v.Reason, "score test against cumulative/partial/logit: chi2(") {
 		t.Errorf("parallel against partial: %+v", v)
 	}
+	// The per-predictor likelihood-ratio test of contact compares the
+	// auxiliary model with contact alone parallel, which has no finite
+	// maximum (Randall's data: rating 1 occurs only with temp = 0), with the
+	// nonparallel model: the reason names those fits by their ids, not the
+	// candidate cumulative/partial/logit, whose fit is usable.
+	for _, tb := range or.Tests {
+		if tb.Approach != fit.Cumulative {
+			continue
+		}
+		for _, vt := range tb.PerVariable {
+			for _, tt := range vt.Tests {
+				if tt.Name == "lr" && vt.Predictor == "contact" && (tt.OK || !strings.Contains(tt.Reason, "cumulative/only-contact-parallel/logit: no_finite_maximum") || strings.Contains(tt.Reason, "partial")) {
+					t.Errorf("LR test of contact: %+v", tt)
+				}
+			}
+		}
+	}
 	if or.Chosen == nil {
 		t.Fatalf("nothing chosen: %s", or.Choice)
 	}

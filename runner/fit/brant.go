@@ -123,7 +123,7 @@ func Brant(d *Data, opt Options) *BrantResult {
 	}
 	fits, err := binaryFits(d, opt)
 	if err != nil {
-		br.Reason = "Brant test cannot be computed: " + err.Error()
+		br.Reason = err.Error()
 		return br
 	}
 	for _, f := range fits {
@@ -131,7 +131,7 @@ func Brant(d *Data, opt Options) *BrantResult {
 	}
 	V, err := brantCovariance(d, binaryProbs(d, fits))
 	if err != nil {
-		br.Reason = "Brant test cannot be computed: " + err.Error()
+		br.Reason = err.Error()
 		return br
 	}
 	K := len(d.Predictors)
@@ -140,7 +140,7 @@ func Brant(d *Data, opt Options) *BrantResult {
 		copy(beta[m*K:], b)
 	}
 	if err := br.equalSlopeTests(d.Predictors, beta, V); err != nil {
-		br.Reason = "Brant test cannot be computed: " + err.Error()
+		br.Reason = err.Error()
 		return br
 	}
 	br.beta, br.cov, br.predictors = beta, V, d.Predictors
