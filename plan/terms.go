@@ -255,7 +255,7 @@ func (d *decoder) increasing(n *yaml.Node, path string, prob bool) []float64 {
 // listed before it, and term names are usable as column names.
 func (d *decoder) checkTerms(p *Plan, terms []design.TermSpec, listKey string) {
 	names := map[string]bool{}
-	for _, t := range terms {
+	for i, t := range terms {
 		plain := len(t.Interact) == 0 && t.Transform.Empty() && p.categorical(t.Source) == nil
 		if bad := design.BadNameChars(t.Name); bad != "" && !plain && d.clean(t.Key) {
 			d.errAt(t.Key, "term name %s contains %s, which cannot be part of a column name (names are used in hypotheses and in the command line's group syntax); give the term a name with name:", quote(t.Name), bad)
@@ -263,7 +263,11 @@ func (d *decoder) checkTerms(p *Plan, terms []design.TermSpec, listKey string) {
 		if len(t.Interact) > 0 {
 			for _, c := range t.Interact {
 				if !names[c] && !slices.Contains(d.badTerms, c) {
-					d.errAt(d.itemKey(t.Key+".interact", c), "%s is not a term listed before this interaction in %s (interactions name earlier terms, e.g. interact: [treat, age])", quote(c), listKey)
+					hint := design.ColumnNotTerm(c, terms[:i])
+					if hint == "" {
+						hint = "interactions name earlier terms, e.g. interact: [treat, age]"
+					}
+					d.errAt(d.itemKey(t.Key+".interact", c), "%s is not a term listed before this interaction in %s (%s)", quote(c), listKey, hint)
 				}
 			}
 		} else if p.categorical(t.Source) != nil && !t.Transform.Empty() {

@@ -184,3 +184,14 @@ func TestProfileLevelLeftOutBySubset(t *testing.T) {
 		t.Errorf("got %v, want %s", err, want)
 	}
 }
+
+// An interaction naming the column of a term instead of the term (the
+// term renamed, log(dose) as dose.log.c) is told the term's name.
+func TestInteractionNamesAColumn(t *testing.T) {
+	src := strings.Replace(termsPlanSrc, "{interact: [treat, age_s]}", "{interact: [treat, dose]}", 1)
+	_, err := Parse([]byte(src), "p.yaml")
+	want := `predictors[6].interact[1]: "dose" is not a term listed before this interaction in predictors ("dose" is a column; interactions name terms, and the term reading it is "dose.log.c")`
+	if err == nil || !strings.Contains(err.Error(), want) {
+		t.Errorf("got %v, want %s", err, want)
+	}
+}

@@ -43,7 +43,7 @@ func parseCompactTerms(s string) (design.Spec, error) {
 		return spec, err
 	}
 	for i, item := range items {
-		t, src, err := parseCompactTerm(item, names)
+		t, src, err := parseCompactTerm(item, names, spec.Terms)
 		if err != nil {
 			return spec, fmt.Errorf("predictor %d (%q): %v", i+1, item, err)
 		}
@@ -78,7 +78,7 @@ func parseCompactTerms(s string) (design.Spec, error) {
 	return spec, nil
 }
 
-func parseCompactTerm(item string, earlier map[string]bool) (design.TermSpec, *design.Source, error) {
+func parseCompactTerm(item string, earlier map[string]bool, terms []design.TermSpec) (design.TermSpec, *design.Source, error) {
 	var t design.TermSpec
 	parts := strings.Split(item, "|")
 	head := strings.TrimSpace(parts[0])
@@ -86,6 +86,9 @@ func parseCompactTerm(item string, earlier map[string]bool) (design.TermSpec, *d
 		for _, p := range strings.Split(head, "&") {
 			p = strings.TrimSpace(p)
 			if !earlier[p] {
+				if hint := design.ColumnNotTerm(p, terms); hint != "" {
+					return t, nil, fmt.Errorf("%q is not a term listed before this interaction (%s)", p, hint)
+				}
 				return t, nil, fmt.Errorf("%q is not a term listed before this interaction", p)
 			}
 			t.Interact = append(t.Interact, p)

@@ -5,6 +5,8 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+
+	"ordplan/internal/words"
 )
 
 // The checks of a term that need no data, written once for the plan's
@@ -82,4 +84,22 @@ func (c *Categorical) Check() (string, error) {
 		return "reference", fmt.Errorf("successive-difference coding compares each level with the one before; the reference is the first level (%s)", strconv.Quote(c.Levels[0]))
 	}
 	return "", nil
+}
+
+// ColumnNotTerm says, of a name an interaction gives that is no earlier
+// term, the earlier terms that read it when it is a column they rename
+// (log(dose) named dose.log): `"dose" is a column; interactions name
+// terms, and the term reading it is "dose.log"`; "" otherwise. The plan's
+// decoder and the compact form of ordplan fit --predictors say it alike.
+func ColumnNotTerm(name string, earlier []TermSpec) string {
+	var by []string
+	for _, t := range earlier {
+		if t.Source == name && t.Name != name && len(t.Interact) == 0 {
+			by = append(by, strconv.Quote(t.Name))
+		}
+	}
+	if len(by) == 0 {
+		return ""
+	}
+	return fmt.Sprintf("%s is a column; interactions name terms, and the term reading it is %s", strconv.Quote(name), words.OrList(by))
 }

@@ -51,3 +51,14 @@ func TestChecksNameTheOption(t *testing.T) {
 		t.Errorf("BadNameChars: %s", got)
 	}
 }
+
+// An interaction naming the column of a renamed term is told the term.
+func TestColumnNotTerm(t *testing.T) {
+	earlier := []TermSpec{{Name: "w", Source: "w"}, {Name: "lz", Source: "z", Transform: Transform{Centre: "mean"}}, {Name: "z2", Source: "z", Transform: Transform{Poly: 2}}}
+	if got, want := ColumnNotTerm("z", earlier), `"z" is a column; interactions name terms, and the term reading it is "lz" or "z2"`; got != want {
+		t.Errorf("got %q, want %q", got, want)
+	}
+	if got := ColumnNotTerm("q", earlier); got != "" {
+		t.Errorf("a name no term reads: %q", got)
+	}
+}
