@@ -947,10 +947,20 @@ func (s *Separation) nameDirection(ly *layout, vec []float64, predictors, catego
 
 // addEvidence adds the data facts behind a separation: a category observed
 // at a single value of a predictor that takes several (at most 10) values.
+// When the direction names predictors, only theirs: a fact about another
+// predictor (one whose effect is parallel, say) is no part of this
+// model's separation, and naming it would mislead.
 func (s *Separation) addEvidence(d *Data) {
 	lv := d.categories()
 	K := len(d.Predictors)
+	named := map[string]bool{}
+	for _, p := range s.Predictors {
+		named[p] = true
+	}
 	for k := 0; k < K; k++ {
+		if len(named) > 0 && !named[d.Predictors[k]] {
+			continue
+		}
 		all := map[float64]bool{}
 		per := make([]map[float64]bool, d.J)
 		for c := range per {
@@ -966,6 +976,17 @@ func (s *Separation) addEvidence(d *Data) {
 		if len(all) < 2 || len(all) > 10 {
 			continue
 		}
+		// A value at which every row is in one or two categories (a
+		// sparse level or cell); when a binary predictor's value holds one
+		// category, the facts below only say the same again.
+		few, single := fewCategories(d, k, all)
+		for _, f := range few {
+			s.Evidence = append(s.Evidence, f)
+			s.Predictors = appendUnique(s.Predictors, d.Predictors[k])
+		}
+		if single && len(all) == 2 {
+			continue
+		}
 		for c := 0; c < d.J; c++ {
 			if len(per[c]) == 1 {
 				for v := range per[c] {
@@ -975,6 +996,53 @@ func (s *Separation) addEvidence(d *Data) {
 			}
 		}
 	}
+}
+
+// fewCategories says, for each value of predictor k (values: the set of
+// them) at which the rows of positive weight fall in one or two
+// categories while the data have more, which those are; single: some
+// value holds one category only.
+func fewCategories(d *Data, k int, values map[float64]bool) (out []string, single bool) {
+	lv := d.categories()
+	seen := map[float64][]bool{}
+	inData := make([]bool, d.J)
+	for i, y := range d.Y {
+		if d.weight(i) <= 0 {
+			continue
+		}
+		v := d.at(i, k)
+		if seen[v] == nil {
+			seen[v] = make([]bool, d.J)
+		}
+		seen[v][y], inData[y] = true, true
+	}
+	total := 0
+	for _, b := range inData {
+		if b {
+			total++
+		}
+	}
+	vs := make([]float64, 0, len(values))
+	for v := range values {
+		vs = append(vs, v)
+	}
+	slices.Sort(vs)
+	for _, v := range vs {
+		var cats []string
+		for c, b := range seen[v] {
+			if b {
+				cats = append(cats, fmt.Sprintf("%q", lv[c]))
+			}
+		}
+		switch {
+		case len(cats) == 0 || len(cats) >= total || len(cats) > 2:
+		case len(cats) == 1:
+			out, single = append(out, fmt.Sprintf("every row with %s = %g is in category %s", d.Predictors[k], v, cats[0])), true
+		default:
+			out = append(out, fmt.Sprintf("every row with %s = %g is in category %s or %s", d.Predictors[k], v, cats[0], cats[1]))
+		}
+	}
+	return out, single
 }
 
 // sortedKeys returns the keys of a set of indices in increasing order.

@@ -3,6 +3,7 @@ package fit
 import (
 	"math"
 	"slices"
+	"strings"
 	"testing"
 )
 
@@ -130,5 +131,36 @@ func TestDistinctRowsStopsAtMost(t *testing.T) {
 	}
 	if got := distinctRows(d, 2); got != nil {
 		t.Errorf("at most 2: %v, want nil", got)
+	}
+}
+
+// A sparse level: the 5 rows at h = 1 are all in the top category (R glm,
+// binomial logit, of y = 3 against h and x: h's slope 12.9, 27.9, 35.9
+// after 10, 25, 50 iterations, the fitted values at h = 1 reaching 1 -
+// 6e-12 after 25), and z = 1
+// never occurs in category 1, a fact about z that is no part of this
+// separation (z's parallel slope is finite). The message says what the
+// user can check in the data, for h alone.
+func TestSeparationEvidenceSparseLevel(t *testing.T) {
+	d := &Data{J: 3, Predictors: []string{"x", "h", "z"}}
+	rows := [][4]float64{
+		{1, -0.8, 0, 0}, {2, 0.3, 0, 1}, {3, 1.1, 0, 0}, {1, -1.4, 0, 0}, {2, -0.2, 0, 1}, {3, 0.9, 0, 1}, {2, 0.4, 0, 0},
+		{1, 0.2, 0, 0}, {3, -0.5, 0, 1}, {2, -0.9, 0, 0}, {1, 0.6, 0, 0}, {3, 0.1, 0, 1}, {2, 1.3, 0, 1}, {1, -0.3, 0, 0},
+		{3, -1.1, 1, 0}, {3, 0.5, 1, 1}, {3, -0.4, 1, 0}, {3, 0.8, 1, 1}, {3, -0.7, 1, 0},
+	}
+	for _, r := range rows {
+		d.Y = append(d.Y, int(r[0])-1)
+		d.X = append(d.X, r[1], r[2], r[3])
+	}
+	r, err := Fit(d, Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(3, Parallel)}, Options{Workers: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.Status != StatusNoFiniteMaximum {
+		t.Fatalf("status %s (%s)", r.Status, r.Message)
+	}
+	if !strings.Contains(r.Message, `every row with h = 1 is in category "3"`) || strings.Contains(r.Message, "z =") ||
+		strings.Contains(r.Message, "occurs only at h") {
+		t.Errorf("message %q: want the fact about h = 1 alone", r.Message)
 	}
 }
