@@ -123,7 +123,10 @@ rules:
 	files := renderSource(t, dir, src, 2)
 	md := string(files["report.md"])
 	want := []string{
-		fmt.Sprintf("describe the observed values of the original data `%s` (%d observations with the outcome observed, %d with it missing), not an imputed set", filepath.Join(dir, "d.csv"), n, missingY),
+		// The file as the plan names it, whatever the folder the command
+		// runs from (it was the path from there).
+		fmt.Sprintf("describe the observed values of the original data `d.csv` (%d observations with the outcome observed, %d with it missing), not an imputed set", n, missingY),
+		"Missing values in the columns the analysis uses, in the original data `d.csv`.",
 		"Outcome categories, observed values of the original data",
 		fmt.Sprintf("| (missing, imputed) | %d |  |", missingY),
 	}

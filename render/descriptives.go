@@ -183,7 +183,7 @@ func writeMissing(d *doc, or *runner.OutcomeResult) {
 	incomplete := mt.Rows - complete
 	if or.Imputed != nil {
 		d.p("Missing values in the columns the analysis uses, in the original data %s. Of %d rows, %d (%s) miss at least one used column; the analysis uses the %d imputed data sets instead (see Multiple imputation).",
-			mdCode(or.Data.File), mt.Rows, incomplete, sharePct(incomplete, mt.Rows), or.Imputed.M)
+			mdCode(originalFile(or)), mt.Rows, incomplete, sharePct(incomplete, mt.Rows), or.Imputed.M)
 	} else {
 		d.p("Missing values in the columns the analysis uses. Of %d rows, %d (%s) miss at least one used column; they were dropped before any fit, and the %d complete rows (%s) are analysed.",
 			mt.Rows, incomplete, sharePct(incomplete, mt.Rows), complete, sharePct(complete, mt.Rows))
@@ -309,4 +309,13 @@ func dfCell(df float64) string {
 		return "inf"
 	}
 	return numfmt.Fixed(df, 1)
+}
+
+// originalFile names the data file whose missing values an imputed run
+// describes: the original data (Observed), not the file of an imputed set.
+func originalFile(or *runner.OutcomeResult) string {
+	if or.Observed != nil && or.Observed.File != "" {
+		return or.Observed.File
+	}
+	return or.Data.File
 }

@@ -77,6 +77,12 @@ func TestImputedReport(t *testing.T) {
 		"Lipsitz test, pooled over the imputed sets by D2 (approximate): F(",
 		"combined by the D2 rule [",
 		"Li, K.H., Meng, X.L., Raghunathan, T.E. & Rubin, D.B. (1991). Significance levels from repeated p-values with multiply-imputed data.",
+		// The missing values are those of the original data file, named
+		// as such (it named the stacked file of the imputed sets).
+		"Missing values in the columns the analysis uses, in the original data `orig.csv`.",
+		// Pooled estimates refer to t on their Barnard-Rubin df.
+		"each p-value and interval refers to t on the estimate's Barnard-Rubin degrees of freedom",
+		"| Parameter | Estimate | Std. error | t | p | 95% low | 95% high |",
 	)
 	// The observed counts of the goodness-of-fit table are means over the
 	// sets: each is written with one decimal, as the expected counts are.

@@ -43,6 +43,9 @@ type ImputedRun struct {
 	// design frozen on set 1 (nil when trivial), which the jobs carry.
 	sources []setSource
 	design  *design.Frozen
+	// names say where each set is read, for messages ("imp.csv (imp =
+	// 2)", or the set's file).
+	names []string
 }
 
 // setSource is an imputed set as a data file a job can name: its name
@@ -126,7 +129,7 @@ func imputedSets(a *Analysis, r Reading) (*ImputedRun, []*data.Dataset, *design.
 		}
 	}
 	run.Rows = sets[0].N
-	run.Data = sets
+	run.Data, run.names = sets, names
 	dz, fds, err := designSets(spec, sets)
 	if err != nil {
 		return nil, nil, nil, fmt.Errorf("%s: %v (outcome %q)", src, err, r.Outcome)
@@ -617,7 +620,17 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 		if err != nil {
 			return nil, fmt.Errorf("%s (plan %s, outcome %q)", err, an.Source, oc.Column)
 		}
+		if err := run.matchObserved(an.Source, orig, an.DataFile, dopt.PredictorLevels); err != nil {
+			return nil, err
+		}
 		ds.Missing, run.observed = orig.Missing, orig
+	}
+	if run.observed != nil && an.DataFile != "" {
+		// The original data as the plan names it (the report names it),
+		// not as the path from where the command runs.
+		o := *run.observed
+		o.File = an.DataFile
+		run.observed = &o
 	}
 	or := &OutcomeResult{Outcome: oc, Data: &ds, Observed: run.observed, FitData: run.Sets[0], Design: dz, Terms: termsOf(dz), dataOptions: r.Options, Imputed: run}
 	or.Notes = append(append(or.Notes, ds.Notes...), dz.Notes...)
@@ -735,4 +748,44 @@ func pooledLinear(f *FitEntry, hy *fit.Hypothesis) fit.Test {
 		return missingTest(fit.TestWald, err.Error())
 	}
 	return fTest(fit.TestWald, t, math.NaN(), math.NaN())
+}
+
+// matchObserved checks that every imputed set was made from the original
+// data orig (its incomplete rows kept): the same rows, in order, and in
+// each row every value orig observes (the outcome and the raw columns
+// the terms read) the same in the set, numbers within 1e-9 relative (the
+// digits another program may write). Imputed sets made from another
+// version of the data file (rows added since, a value corrected) would
+// otherwise be analysed while the report describes the file.
+func (run *ImputedRun) matchObserved(src string, orig *data.Dataset, file string, levels map[string][]string) error {
+	value := func(col string, v float64) string {
+		if lv, ok := levels[col]; ok && v >= 0 && v == math.Trunc(v) && int(v) < len(lv) {
+			return strconv.Quote(lv[int(v)])
+		}
+		return strconv.FormatFloat(v, 'g', -1, 64)
+	}
+	redo := "an imputed set must keep every observed value of the data file: make the imputed sets again from " + file + ", or point data.file at the data they were made from"
+	for k, ds := range run.Data {
+		if ds.N != orig.N {
+			return fmt.Errorf("%s: data.imputed: imputed set %d, %s, has %d rows but the data file %s has %d (each after the plan's subset); imputed sets hold the rows of the data they were made from: make them again from %s, or point data.file at the data they were made from", src, k+1, run.names[k], ds.N, file, orig.N, file)
+		}
+		if !slices.Equal(ds.Predictors, orig.Predictors) || ds.K != orig.K {
+			return fmt.Errorf("%s: data.imputed: imputed set %d, %s, reads the columns %s but the data file %s reads %s", src, k+1, run.names[k], strings.Join(ds.Predictors, ", "), file, strings.Join(orig.Predictors, ", "))
+		}
+		for i := 0; i < orig.N; i++ {
+			where := func(col, got, want string) error {
+				return fmt.Errorf("%s: data.imputed: imputed set %d, %s, line %d: column %q is %s where the data file %s, line %d, has the observed value %s; %s", src, k+1, run.names[k], ds.Lines[i], col, got, file, orig.Lines[i], want, redo)
+			}
+			if y := orig.Y[i]; y >= 0 && ds.Y[i] != y {
+				return where(orig.Outcome, strconv.Quote(ds.Categories[ds.Y[i]]), strconv.Quote(orig.Categories[y]))
+			}
+			for j := 0; j < orig.K; j++ {
+				v, w := orig.X[i*orig.K+j], ds.X[i*orig.K+j]
+				if !math.IsNaN(v) && !(math.Abs(w-v) <= 1e-9*math.Max(1, math.Abs(v))) {
+					return where(orig.Predictors[j], value(orig.Predictors[j], w), value(orig.Predictors[j], v))
+				}
+			}
+		}
+	}
+	return nil
 }

@@ -510,6 +510,22 @@ func imputedFiles(t *testing.T, dir, id string) {
 		return l
 	})
 	os.WriteFile(filepath.Join(dir, "imp-cols.csv"), []byte("y,a,b,extra\n1,0.5,1,2\n2,0.1,0,3\n"), 0o644)
+	// Sets made from another version of d.csv: one row fewer (rows added
+	// to the data since), or an observed value of a corrected since.
+	stack("imp-fewer.csv", []string{"1", "2"}, func(k string, i int, l string) string {
+		if i == len(lines)-2 {
+			return ""
+		}
+		return l
+	})
+	stack("imp-other.csv", []string{"1", "2"}, func(k string, i int, l string) string {
+		if k == "2" && i == 2 {
+			f := strings.Split(l, ",")
+			f[1] = "7.25"
+			return strings.Join(f, ",")
+		}
+		return l
+	})
 }
 
 // catalogue lists the items of docs/bad-inputs.md; dir holds the files.
@@ -596,6 +612,12 @@ func catalogue(dir string) (items []badInput) {
 		{id: "I6", name: "an imputed set with missing values", args: []string{"run"}, setup: imputedFiles,
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp-miss.csv, column: imp}\n"), code: 1,
 			want: []string{`data.imputed: imputed set 2, imp-miss.csv (imp = 2), has rows with missing values or zero weight (a: 1); every imputed set must be complete in the columns the plan uses`}},
+		{id: "I19", name: "imputed sets with fewer rows than the data file (made before rows were added)", args: []string{"run"}, setup: imputedFiles,
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp-fewer.csv, column: imp}\n"), code: 1,
+			want: []string{`data.imputed: imputed set 1, imp-fewer.csv (imp = 1), has 119 rows but the data file d.csv has 120 (each after the plan's subset); imputed sets hold the rows of the data they were made from: make them again from d.csv, or point data.file at the data they were made from`}},
+		{id: "I19", name: "an imputed set that changes an observed value of the data file", args: []string{"run"}, setup: imputedFiles,
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp-other.csv, column: imp}\n"), code: 1,
+			want: []string{`data.imputed: imputed set 2, imp-other.csv (imp = 2), line 124: column "a" is 7.25 where the data file d.csv, line 4, has the observed value -1.6773`, `; an imputed set must keep every observed value of the data file: make the imputed sets again from d.csv, or point data.file at the data they were made from`}},
 		{id: "I7", name: "imputation number that is not a whole number", args: []string{"run"}, setup: imputedFiles,
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp-frac.csv, column: imp}\n"), code: 1,
 			want: []string{`imp-frac.csv:2: column imp: imputation number "1.5" is not a whole number 0 or more (0 marks the original data)`}},

@@ -580,7 +580,7 @@ func recordChange(kept string, record []byte) string {
 		changed = append(changed, "the program changed ("+was.Version+" -> "+now.Version+")")
 	}
 	if len(changed) == 0 {
-		return "same plan, data and program version; another command line or environment"
+		return "same plan, data and program version: another build of the program, command line or environment"
 	}
 	return words.AndList(changed)
 }
