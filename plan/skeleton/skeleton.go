@@ -169,7 +169,7 @@ func Write(in Input) ([]byte, error) {
 	w("data:")
 	w("  file: %s", yamlString(in.DataFile))
 	writeDialect(w, in)
-	w("  missing: drop           # drop rows with a missing value (counted in the report), or refuse")
+	w("  missing: drop           # drop rows with a missing value (counted in the report), refuse, or impute (multiple imputation by chained equations, data.imputation)")
 	w("  missing_values: [\"\", \"NA\", \"NaN\", \".\"]   # cells that mean \"missing\"")
 	w("  weights: null           # a column of case weights")
 	w("  offset: null            # a column added to every linear predictor")
