@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strconv"
 	"strings"
 	"testing"
@@ -189,6 +190,33 @@ func TestInitGuessesScaleOutcome(t *testing.T) {
 		if got := pl.Outcomes[0].Column; got != c.want {
 			text, _ := os.ReadFile(p)
 			t.Errorf("case %d: outcome %q, want %q\n%s", i, got, c.want, text)
+		}
+	}
+}
+
+// From a header line alone (no values to judge), the outcome is guessed
+// by name: a rating or order word first, else the first column that is not
+// an identifier, count or measure; before, the first column (often "id")
+// was named the outcome.
+func TestInitGuessesOutcomeFromHeader(t *testing.T) {
+	dir := t.TempDir()
+	for i, c := range []struct{ header, want string }{
+		{"id,pain_score,arm,age,sex", "pain_score"},
+		{"id,y,age,sex", "y"},
+		{"subject_id,visit,health,arm", "health"},
+		{"record,age,n_visits", "record"},
+	} {
+		p := filepath.Join(dir, "h"+strconv.Itoa(i)+".yaml")
+		if _, errs, code := runCLI("init", p, "--header", c.header); code != 0 {
+			t.Fatalf("init: %s", errs)
+		}
+		text, err := os.ReadFile(p)
+		if err != nil {
+			t.Fatal(err)
+		}
+		m := regexp.MustCompile(`(?m)^  - column: "?([^"\s]+)"?`).FindStringSubmatch(string(text))
+		if m == nil || m[1] != c.want {
+			t.Errorf("%q: outcome %v, want %q\n%s", c.header, m, c.want, text)
 		}
 	}
 }

@@ -101,8 +101,8 @@ func Write(in Input) ([]byte, error) {
 				outcome, best = i, sc
 			}
 		}
-		if outcome < 0 && len(in.Columns) > 0 {
-			outcome = 0
+		if outcome < 0 {
+			outcome = outcomeByName(in.Columns)
 		}
 	}
 	var preds, skipped []string
@@ -338,7 +338,9 @@ func writeDialect(w func(string, ...any), in Input) {
 //     age, year, n, id, ...): -2.
 //
 // So a four-value text scale on a small file beats an integer column, and
-// integer codes beat a text column of places or groups.
+// integer codes beat a text column of places or groups. When no column is
+// a candidate (a header line without data), the name alone decides:
+// outcomeByName.
 func outcomeScore(c data.Profile, k Kind) int {
 	if !k.Candidate {
 		return 0
@@ -386,6 +388,31 @@ var (
 	orderNames = []string{"rating", "score", "grade", "level", "severity", "satisf", "agree", "stage", "rank", "scale"}
 	countNames = []string{"count", "number", "num", "n", "id", "visit", "times", "day", "age", "year", "size"}
 )
+
+// outcomeByName guesses the outcome among columns without values to judge
+// (a header line): the first whose name says rating or order, else the
+// first whose name says neither count, measure or identifier (countNames,
+// idNames), else the first column.
+func outcomeByName(cols []data.Profile) int {
+	for i, c := range cols {
+		if hasAny(strings.ToLower(c.Name), orderNames) {
+			return i
+		}
+	}
+	for i, c := range cols {
+		name := strings.ToLower(c.Name)
+		if !hasAny(name, countNames) && !hasAny(name, idNames) {
+			return i
+		}
+	}
+	if len(cols) == 0 {
+		return -1
+	}
+	return 0
+}
+
+// idNames begin words of the names of identifier columns.
+var idNames = []string{"id", "code", "key", "record", "row", "subject", "participant", "respondent", "case", "uuid"}
 
 // scaleLike reports whether text values look like the points of an
 // ordered scale: all but at most one (and at least two) hold a scale word.
