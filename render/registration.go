@@ -8,8 +8,8 @@ import (
 )
 
 // lockWords are the sentences of the registration paragraph that depend
-// on what the report is of: a run of the plan on data (run, rehearse) or a
-// power study, which simulates the plan and whose numbers belong to the
+// on what the report is of: a run of the plan on data, a rehearsal of it on
+// simulated data, or a power study, which simulates the plan and whose numbers belong to the
 // plan it simulated.
 type lockWords struct {
 	none    string // after "No lock file (X) lies beside the plan, "
@@ -27,6 +27,13 @@ var (
 		departs: "This run departs from it",
 		what:    "run",
 	}
+	rehearseLockWords = lockWords{
+		none:    "so nothing shows when this plan was fixed; `ordplan freeze` writes one before the real data are seen.",
+		matches: "The plan rehearsed here is the frozen plan, key for key.",
+		forced:  "This rehearsal, on simulated data, shows how a plan that differs from the registered one in these keys would run; a run of it on the real data would not be the registered analysis.",
+		departs: "The plan rehearsed here departs from it",
+		what:    "rehearsal",
+	}
 	powerLockWords = lockWords{
 		none:    "so nothing ties these numbers to a registered analysis but the plan's SHA-256 above; `ordplan freeze` fixes the plan, with the sample size chosen, before the data are seen.",
 		matches: "The plan simulated here is the frozen plan, key for key: the power and model choice below are those of the registered analysis.",
@@ -41,7 +48,11 @@ var (
 // value of this run, stated reason). Unexplained changes let through by
 // the command line are announced in the first lines.
 func writeRegistration(d *doc, r *runner.Result) {
-	writeLockStatus(d, r.Registration, r.Version, runLockWords)
+	words := runLockWords
+	if r.Simulated != nil {
+		words = rehearseLockWords
+	}
+	writeLockStatus(d, r.Registration, r.Version, words)
 }
 
 // writeLockStatus writes the plan compared with its lock (st nil: not

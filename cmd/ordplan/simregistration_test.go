@@ -92,6 +92,11 @@ func TestSimulationRecordsRegistration(t *testing.T) {
 	}
 	if b, _ := os.ReadFile(filepath.Join(dir, "r2", "report.md")); !strings.Contains(string(b), "**UNREGISTERED CHANGES: 1 of the 1 change(s)") {
 		t.Errorf("the rehearsal's report does not say so")
+	} else if !strings.Contains(string(b), "the rehearsal was forced with `--allow-unregistered-changes`.** This rehearsal, on simulated data,") ||
+		!strings.Contains(string(b), "The plan rehearsed here departs from it") || strings.Contains(string(b), "before the data were seen") {
+		// A rehearsal sees no data: the run's words (results "not fixed
+		// before the data were seen", "this run") were untrue of it.
+		t.Errorf("the rehearsal's report speaks of a run on data:\n%.2500s", b)
 	}
 	if b, _ := os.ReadFile(filepath.Join(dir, "p2", "power.md")); !strings.Contains(string(b), "**UNREGISTERED CHANGES: 1 of the 1 change(s)") || !strings.Contains(string(b), "| `rules[2].reject_if_test_rejects.alpha` | `0.01` | `0.05` | **no stated reason** |") {
 		t.Errorf("the power study does not say so:\n%.2500s", b)
