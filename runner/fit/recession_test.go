@@ -2,9 +2,12 @@ package fit
 
 import (
 	"math"
+	"path/filepath"
 	"slices"
 	"strings"
 	"testing"
+
+	"ordplan/internal/rscript"
 )
 
 // seed51 is a seeded tiny invented study (11 rows, frequency weights) in
@@ -63,7 +66,8 @@ func TestSeparationFoundByProgramme(t *testing.T) {
 }
 
 // The programme finds no direction where none exists and one where one
-// does, as R's lpSolve says on the same models written as R glm's
+// does, as R's lpSolve says (values recorded here; TestRecessionAgainstLPSolve
+// runs lpSolve again when R has it) on the same models written as R glm's
 // binary rows (the stage logit expanded by equation: y = m against y > m
 // on the rows with y >= m, design ~ 0 + eq + x + b:eq + g, and with
 // every term by equation): a tiny invented study of 14 weighted rows.
@@ -162,5 +166,59 @@ func TestSeparationEvidenceSparseLevel(t *testing.T) {
 	if !strings.Contains(r.Message, `every row with h = 1 is in category "3"`) || strings.Contains(r.Message, "z =") ||
 		strings.Contains(r.Message, "occurs only at h") {
 		t.Errorf("message %q: want the fact about h = 1 alone", r.Message)
+	}
+}
+
+// The programme finds a direction exactly where R's general-purpose
+// linear-programming package lpSolve does, given inequalities written
+// independently in R (testdata/rcheck/recession.R): the stage logit of
+// TestProgrammeAgainstLPSolve's study as binary glm designs on the
+// expanded rows (parallel, b nonparallel, all nonparallel), and the
+// adjacent logit of seed51 with b free across equations from its
+// probabilities' partial sums. Skipped without R or lpSolve (Debian:
+// r-cran-lpsolve).
+func TestRecessionAgainstLPSolve(t *testing.T) {
+	rscript.Require(t)
+	if !rscript.HasPackage(t, "lpSolve") {
+		t.Skip("the R package lpSolve is not installed (Debian: apt-get install r-cran-lpsolve): the check against it is skipped")
+	}
+	stage := tinyData(t, 3, [][4]float64{{2, -1.24, 1}, {2, -1.36, 0}, {2, -0.66, 1}, {3, 1.38, 0}, {3, -0.33, 1}, {3, 0.01, 0}, {3, 0.81, 0},
+		{2, -0.1, 1}, {3, 1.22, 1}, {2, 0.05, 0}, {1, -0.02, 0}, {1, -1.28, 1}, {2, -1.16, 1}, {3, 1.64, 1}},
+		"vwvvvuuuwuuuvv", []float64{3, 3, 3, 3, 3, 2, 1, 2, 1, 3, 1, 2, 2, 1})
+	adj := seed51(t)
+	dir := t.TempDir()
+	for name, d := range map[string]*Data{"rows.csv": stage, "adj.csv": adj} {
+		cols := make([][]float64, 6)
+		for i, y := range d.Y {
+			cols[0] = append(cols[0], float64(y+1))
+			for k := 0; k < 4; k++ {
+				cols[k+1] = append(cols[k+1], d.at(i, k))
+			}
+			cols[5] = append(cols[5], d.weight(i))
+		}
+		rscript.WriteCSV(t, filepath.Join(dir, name), []string{"y", "x", "b", "gv", "gw", "w"}, cols)
+	}
+	vals := rscript.Run(t, dir, filepath.Join("testdata", "rcheck", "recession.R"))
+	for _, c := range []struct {
+		name string
+		d    *Data
+		m    Model
+	}{
+		{"stage_parallel", stage, Model{Comparison: Stage, Link: Logit, Effects: allEffects(4, Parallel)}},
+		{"stage_b_nonparallel", stage, Model{Comparison: Stage, Link: Logit, Effects: []Effect{Parallel, Nonparallel, Parallel, Parallel}}},
+		{"stage_nonparallel", stage, Model{Comparison: Stage, Link: Logit, Effects: allEffects(4, Nonparallel)}},
+		{"adjacent_b_nonparallel", adj, Model{Comparison: Adjacent, Link: Logit, Effects: []Effect{Parallel, Nonparallel, Parallel, Parallel}}},
+	} {
+		ly, err := newLayout(c.m, c.d.J, c.d.Predictors)
+		if err != nil {
+			t.Fatal(err)
+		}
+		vars := lpVariables(ly, make([]float64, len(ly.params)), c.m, phiHeld)
+		found := recessionLP(recessionRows(c.d, distinctRows(c.d, math.MaxInt), c.m, ly, vars)) != nil
+		value := vals.Scalar(t, c.name)
+		if want := value > 1e-7; found != want {
+			t.Errorf("%s: direction found %v; R lpSolve's value %g", c.m.Name(), found, value)
+		}
+		t.Logf("%s: R lpSolve value %g, direction found %v", c.name, value, found)
 	}
 }
