@@ -250,7 +250,7 @@ func (an *Analysis) DescribeRule(r plan.Rule) string {
 		against := map[string]string{
 			plan.AgainstLeast: "the least constrained model of its approach and link",
 			plan.AgainstNext:  "the next less constrained model of its approach and link",
-			plan.AgainstEach:  "each less constrained model of its approach and link in turn (rejected if any test rejects)",
+			plan.AgainstEach:  "each less constrained model of its approach and link in turn (rejected if any test rejects: each test at the same alpha, with no correction for their number, so a model is rejected more often than alpha when the simpler structure holds)",
 		}[r.Against]
 		s := fmt.Sprintf("Reject a model when the %s test against %s rejects it at alpha = %g.", r.Test.Title(), against, r.Alpha)
 		if r.AppliesTo != nil {
