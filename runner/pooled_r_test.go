@@ -28,16 +28,7 @@ func TestPooledPredictionsAgainstMice(t *testing.T) {
 	const m, n = 5, 150
 	dir := t.TempDir()
 	rng := rand.New(rand.NewPCG(41, 3))
-	x1, x2, y := make([]float64, n), make([]float64, n), make([]float64, n)
-	miss := make([]bool, n)
-	for i := range n {
-		x1[i] = rng.NormFloat64()
-		x2[i] = 0.5*x1[i] + rng.NormFloat64()
-		if rng.Float64() < 1/(1+math.Exp(-(0.2+0.9*x1[i]-0.7*x2[i]))) {
-			y[i] = 1
-		}
-		miss[i] = rng.Float64() < 0.35
-	}
+	x1, x2, y, miss := binaryStudy(rng, n, 0.35)
 	newX := []float64{0, 0, 1, -1, -0.5, 1.5}
 	rscript.WriteCSV(t, filepath.Join(dir, "new.csv"), []string{"x1", "x2"}, [][]float64{{0, 1, -0.5}, {0, -1, 1.5}})
 	os.WriteFile(filepath.Join(dir, "m.txt"), []byte(strconv.Itoa(m)+"\n"), 0o644)
@@ -106,16 +97,7 @@ func TestPooledEstimatesAgainstMice(t *testing.T) {
 	const m, n = 5, 60
 	dir := t.TempDir()
 	rng := rand.New(rand.NewPCG(97, 5))
-	x1, x2, y := make([]float64, n), make([]float64, n), make([]float64, n)
-	miss := make([]bool, n)
-	for i := range n {
-		x1[i] = rng.NormFloat64()
-		x2[i] = 0.5*x1[i] + rng.NormFloat64()
-		if rng.Float64() < 1/(1+math.Exp(-(0.2+0.9*x1[i]-0.7*x2[i]))) {
-			y[i] = 1
-		}
-		miss[i] = rng.Float64() < 0.4
-	}
+	x1, x2, y, miss := binaryStudy(rng, n, 0.4)
 	os.WriteFile(filepath.Join(dir, "m.txt"), []byte(strconv.Itoa(m)+"\n"), 0o644)
 	model := fit.Model{Comparison: fit.Cumulative, Link: fit.Logit, Effects: []fit.Effect{fit.Parallel, fit.Parallel}}
 	rs := make([]*fit.Result, m)
@@ -180,4 +162,22 @@ func TestPooledEstimatesAgainstMice(t *testing.T) {
 		}
 		t.Logf("%s: t %.4f on %.2f df, p %.5f, interval [%.5f, %.5f]; mice t %.4f on %.2f df, p %.5f", name, inf.Stat, inf.DF, inf.P, inf.Low, inf.High, sign*r[2], r[3], r[4])
 	}
+}
+
+// binaryStudy draws the invented study of the pooled checks against mice:
+// n rows of x1 ~ N(0, 1), x2 = 0.5 x1 + N(0, 1), y from a logistic model
+// in both, and x2 marked missing with probability pMiss (rng goes on to
+// draw the imputations).
+func binaryStudy(rng *rand.Rand, n int, pMiss float64) (x1, x2, y []float64, miss []bool) {
+	x1, x2, y = make([]float64, n), make([]float64, n), make([]float64, n)
+	miss = make([]bool, n)
+	for i := range n {
+		x1[i] = rng.NormFloat64()
+		x2[i] = 0.5*x1[i] + rng.NormFloat64()
+		if rng.Float64() < 1/(1+math.Exp(-(0.2+0.9*x1[i]-0.7*x2[i]))) {
+			y[i] = 1
+		}
+		miss[i] = rng.Float64() < pMiss
+	}
+	return x1, x2, y, miss
 }

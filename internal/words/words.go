@@ -77,25 +77,20 @@ func Unknown(what, w string, names []string) string {
 
 // AndList renders ["a", "b", "c"] as "a, b and c" ("a and b", "a"; "" for
 // none): the one way the program lists names in a sentence.
-func AndList(words []string) string {
-	switch len(words) {
-	case 0:
-		return ""
-	case 1:
-		return words[0]
-	}
-	return strings.Join(words[:len(words)-1], ", ") + " and " + words[len(words)-1]
-}
+func AndList(words []string) string { return list(words, " and ") }
 
 // OrList renders ["a", "b", "c"] as "a, b or c".
-func OrList(words []string) string {
+func OrList(words []string) string { return list(words, " or ") }
+
+// list joins words with ", " and the last pair with last.
+func list(words []string, last string) string {
 	switch len(words) {
 	case 0:
 		return ""
 	case 1:
 		return words[0]
 	}
-	return strings.Join(words[:len(words)-1], ", ") + " or " + words[len(words)-1]
+	return strings.Join(words[:len(words)-1], ", ") + last + words[len(words)-1]
 }
 
 // OrList renders the words of the set as "a, b or c".
