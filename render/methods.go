@@ -213,6 +213,9 @@ func writeMethods(d *doc, r *runner.Result) {
 				s = append(s, fmt.Sprintf("Its fit by covariate pattern of the categorical predictors (%s) was checked with the Pulkstenis-Robinson Pearson and deviance tests %s.", strings.Join(ps.Predictors, ", "), c.cite("pulkstenis")))
 			}
 		}
+		if p.Data.Offset != "" {
+			s = append(s, fmt.Sprintf("The model with thresholds only keeps the offset %s, so the comparisons with it count what the predictors add to the offset; McKelvey-Zavoina uses the variance of the predictors' part of the linear predictor, without the offset.", mdCode(p.Data.Offset)))
+		}
 		if or.GOFPooling != nil && or.Lipsitz != nil && !sampling {
 			s = append(s, fmt.Sprintf("On the imputed data these goodness-of-fit tests were computed on each imputed set with that set's fit of the chosen model, and their chi-square statistics were combined by the D2 rule %s, an approximation that is less powerful than the pooled tests of estimates or likelihoods.", c.cite("d2")))
 		}

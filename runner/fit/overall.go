@@ -136,7 +136,8 @@ type Overall struct {
 	CoxSnell   float64 `json:"cox_snell_r2"`
 	Nagelkerke float64 `json:"nagelkerke_r2"`
 	// McKelvey-Zavoina: var(x'b) / (var(x'b) + var of the link's
-	// distribution), cumulative models with parallel effects only.
+	// distribution), cumulative models with parallel effects only; x'b
+	// without the offset, which the thresholds-only model has too.
 	McKelveyZavoina float64 `json:"mckelvey_zavoina_r2"`
 	MZNote          string  `json:"mckelvey_zavoina_note,omitempty"`
 }
@@ -175,14 +176,18 @@ func OverallFitSpread(r, null *Result, s *EtaSpread) Overall {
 }
 
 // EtaSpread is the weighted mean and sum of squared deviations of the
-// linear predictor eta = x'b + offset over rows (divisor: the sum of
-// weights), gathered part by part.
+// predictors' part of the linear predictor, eta = x'b, over rows (divisor:
+// the sum of weights), gathered part by part. An offset is left out: it is
+// a known part of every model's linear predictor, the thresholds-only
+// model's too, so its variance is not explained by the predictors (as the
+// likelihood-based measures, computed against the thresholds-only model
+// with the offset, count only what the predictors add to it).
 type EtaSpread struct {
 	W, Mean, M2 float64
 }
 
-// Add gathers the rows of d (their weights, offset) at the equation-1
-// slopes of r, by West's weighted update of the mean and sum of squares.
+// Add gathers the rows of d (their weights) at the equation-1 slopes of
+// r, by West's weighted update of the mean and sum of squares.
 func (s *EtaSpread) Add(d *Data, r *Result) {
 	K, n := len(r.Predictors), d.N()
 	b, x := r.Effects[0][:K], d.X[:n*K]
@@ -197,9 +202,6 @@ func (s *EtaSpread) Add(d *Data, r *Result) {
 		eta := 0.0
 		for k, v := range x[i*K : (i+1)*K] {
 			eta += v * b[k]
-		}
-		if d.Offset != nil {
-			eta += d.Offset[i]
 		}
 		s.W += w
 		delta := eta - s.Mean
@@ -224,7 +226,7 @@ func LinkVariance(l Link) (float64, bool) {
 }
 
 // mckelveyZavoina is var(eta) / (var(eta) + var(e)) with the spread of
-// eta = x'b + offset over the rows of the fit.
+// eta = x'b (no offset: EtaSpread) over the rows of the fit.
 func mckelveyZavoina(r *Result, s *EtaSpread) (float64, string) {
 	if r.Model.Comparison != Cumulative {
 		return math.NaN(), "defined for cumulative models only (one latent variable)"

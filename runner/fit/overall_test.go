@@ -449,3 +449,36 @@ func TestLipsitzRefitSeparated(t *testing.T) {
 		t.Errorf("test %+v", lz.Test)
 	}
 }
+
+// TestMcKelveyZavoinaLeavesOffsetOut: with an offset, the thresholds-only
+// model keeps it, and McKelvey-Zavoina is the variance of the predictors'
+// part x'b alone (docs/models.md), checked against its definition with
+// gonum's stat.PopVariance on the General Social Survey extract of Long
+// (1997), with an invented offset (0.3 times age in decades plus a
+// seeded normal draw) that varies across rows and correlates with a
+// predictor.
+func TestMcKelveyZavoinaLeavesOffsetOut(t *testing.T) {
+	t.Logf("data: %s", refSources["gsswarm"])
+	rs := loadRef(t, "gsswarm")
+	preds := []string{"yr89", "male", "white", "ed", "prst"}
+	d := rs.data(preds)
+	age := rs.data([]string{"age"}).X
+	rng := rand.New(rand.NewPCG(7, 11))
+	d.Offset = make([]float64, d.N())
+	for i := range d.Offset {
+		d.Offset[i] = 0.03*age[i] + 0.5*rng.NormFloat64()
+	}
+	m := Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(len(preds), Parallel)}
+	r, err := Fit(d, m, Options{})
+	if err != nil || !r.OK() {
+		t.Fatalf("fit: %v %v", err, r)
+	}
+	null, err := FitNull(d, m, Options{})
+	if err != nil || !null.OK() {
+		t.Fatalf("null fit: %v", err)
+	}
+	o := OverallFit(d, r, null)
+	if want := mzDirect(d, r); math.Abs(o.McKelveyZavoina-want) > 1e-10 {
+		t.Errorf("McKelvey-Zavoina with an offset %.12g, the variance of x'b alone gives %.12g", o.McKelveyZavoina, want)
+	}
+}
