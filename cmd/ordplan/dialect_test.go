@@ -627,3 +627,147 @@ func dictParquet(t *testing.T, raw []byte) []byte {
 	}
 	return b.Bytes()
 }
+
+// boolSurvey is invented data with booleans: an outcome, a number x, a
+// boolean b used as a number (an indicator), a boolean f declared
+// categorical, a boolean s the subset reads; about one b in twenty
+// missing. The CSV text spells booleans as spell does.
+type boolSurveyRow struct {
+	Outcome string  `parquet:"outcome"`
+	X       float64 `parquet:"x"`
+	B       *bool   `parquet:"b,optional"`
+	F       bool    `parquet:"f"`
+	S       bool    `parquet:"s"`
+}
+
+func boolSurvey() []boolSurveyRow {
+	rng := rand.New(rand.NewPCG(23, 5))
+	var rows []boolSurveyRow
+	for range 300 {
+		x := math.Round(rng.NormFloat64()*1e4) / 1e4
+		b, f := rng.Float64() < 0.4, rng.Float64() < 0.5
+		eta := 0.8*x + rng.NormFloat64()
+		if b {
+			eta += 0.7
+		}
+		if f {
+			eta -= 0.4
+		}
+		y := "high"
+		switch {
+		case eta < 0:
+			y = "low"
+		case eta < 1:
+			y = "mid"
+		}
+		r := boolSurveyRow{Outcome: y, X: x, F: f, S: rng.Float64() < 0.85}
+		if rng.Float64() >= 0.05 {
+			r.B = &b
+		}
+		rows = append(rows, r)
+	}
+	return rows
+}
+
+// The same data with booleans in CSV (TRUE and FALSE; true and false),
+// an .xlsx workbook of boolean cells and a Parquet file of BOOLEAN
+// columns give byte-identical decisions.json through ordplan run, but for
+// the hashes of the files as read: a boolean is 1 or 0 where it is a
+// number (b, with its dictionary's values 0 and 1), the declared level it
+// spells where it is categorical (f, levels FALSE and TRUE), and the
+// subset's one_of [TRUE] keeps the same rows.
+func TestFormatsAgreeOnBooleans(t *testing.T) {
+	rows := boolSurvey()
+	csvText := func(spell func(bool) string) []byte {
+		var b strings.Builder
+		b.WriteString("outcome,x,b,f,s\n")
+		for _, r := range rows {
+			bs := ""
+			if r.B != nil {
+				bs = spell(*r.B)
+			}
+			fmt.Fprintf(&b, "%s,%s,%s,%s,%s\n", r.Outcome, strconv.FormatFloat(r.X, 'g', -1, 64), bs, spell(r.F), spell(r.S))
+		}
+		return []byte(b.String())
+	}
+	upper := csvText(func(b bool) string { return strings.ToUpper(strconv.FormatBool(b)) })
+	lower := csvText(strconv.FormatBool)
+	book := excelize.NewFile()
+	defer book.Close()
+	book.SetSheetRow("Sheet1", "A1", &[]any{"outcome", "x", "b", "f", "s"})
+	for i, r := range rows {
+		cells := []any{r.Outcome, r.X, nil, r.F, r.S}
+		if r.B != nil {
+			cells[2] = *r.B
+		}
+		cell, _ := excelize.CoordinatesToCellName(1, i+2)
+		book.SetSheetRow("Sheet1", cell, &cells)
+	}
+	var xb, pb bytes.Buffer
+	if err := book.Write(&xb); err != nil {
+		t.Fatal(err)
+	}
+	if err := parquet.Write(&pb, rows); err != nil {
+		t.Fatal(err)
+	}
+	plan := func(dir, file string) string {
+		src := `version: 1
+title: Booleans agree
+seed: 11
+data:
+  file: ` + file + `
+  missing_values: ["", "NA"]
+outcomes:
+  - column: outcome
+    categories: [low, mid, high]
+subset:
+  - {column: s, one_of: ["TRUE"]}
+categorical:
+  f: {levels: ["FALSE", "TRUE"]}
+predictors: [x, b, f]
+dictionary:
+  x: {label: A number}
+  b: {values: [0, 1], label: A boolean read as a number}
+  f: {label: A boolean read as levels}
+  s: {values: [0, 1], label: The boolean the subset reads}
+models:
+  approaches: [cumulative]
+  effects: [parallel, nonparallel]
+  links: [logit]
+tests:
+  parallel_lines: [lr, wald]
+rules:
+  - reject_unconverged: true
+  - prefer_simpler: {by: bic, margin: 2}
+report:
+  timestamp: false
+`
+		p := filepath.Join(dir, "plan.yaml")
+		if err := os.WriteFile(p, []byte(src), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	cases := []struct {
+		file string
+		data []byte
+	}{{"d.csv", upper}, {"d.csv", lower}, {"d.xlsx", xb.Bytes()}, {"d.parquet", pb.Bytes()}}
+	var want []byte
+	for i, c := range cases {
+		dir := t.TempDir()
+		if err := os.WriteFile(filepath.Join(dir, c.file), c.data, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		got := planDecisions(t, dir, c.file, c.data, plan(dir, c.file))
+		if i == 0 {
+			want = got
+			for _, s := range []string{`"f.TRUE"`, `"column": "b"`, `"b"`} {
+				if !bytes.Contains(got, []byte(s)) {
+					t.Fatalf("decisions.json lacks %s:\n%s", s, got)
+				}
+			}
+			continue
+		}
+		sameDecisions(t, fmt.Sprintf("case 1 and case %d (%s)", i+1, c.file), want, got)
+	}
+}

@@ -172,10 +172,7 @@ func cellText(v parquet.Value, mark byte) string {
 	}
 	switch v.Kind() {
 	case parquet.Boolean:
-		if v.Boolean() {
-			return "1"
-		}
-		return "0"
+		return boolText(v.Boolean())
 	case parquet.Int32:
 		return strconv.FormatInt(int64(v.Int32()), 10)
 	case parquet.Int64:

@@ -78,8 +78,12 @@ func (d Dialect) DecimalWord() string {
 
 // number parses a trimmed, non-missing numeric cell in the dialect's
 // decimal mark. With a decimal comma, a point in the cell is refused
-// rather than guessed at (it could be a thousands separator).
+// rather than guessed at (it could be a thousands separator). A boolean
+// word is 1 or 0 (boolWord).
 func (d Dialect) number(cell string) (float64, string) {
+	if v, ok := boolWord(cell); ok {
+		return v, ""
+	}
 	if !d.DecimalComma {
 		if strings.ContainsRune(cell, ',') && isNumberLike(cell) {
 			if _, msg := parseNumber(strings.Replace(cell, ",", ".", 1)); msg == "" && strings.Count(cell, ",") == 1 {

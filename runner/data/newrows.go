@@ -101,7 +101,7 @@ func LoadRowsMissing(path string, predictors []string, levels map[string][]strin
 			if lv, cat := levels[c]; cat && j < K {
 				l := -1
 				for i, x := range lv {
-					if x == cell {
+					if sameText(x, cell) {
 						l = i
 					}
 				}

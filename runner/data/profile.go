@@ -4,6 +4,7 @@ import (
 	"io"
 	"math"
 	"slices"
+	"strconv"
 	"strings"
 )
 
@@ -89,10 +90,21 @@ func ProfileFile(path string, missingTokens []string, d Dialect) ([]Profile, err
 	}
 	for i := range out {
 		p := &out[i]
-		p.Distinct = len(p.Values)
 		if p.Rows == p.Missing {
 			p.Numeric, p.Integer = false, false
 		}
+		if p.Numeric {
+			// Booleans read as numbers are listed as the numbers they
+			// are read as, whatever the format (true, TRUE: 1).
+			for j, v := range p.Values {
+				if b, ok := boolWord(v); ok {
+					p.Values[j] = strconv.FormatFloat(b, 'g', -1, 64)
+				}
+			}
+			slices.Sort(p.Values)
+			p.Values = slices.Compact(p.Values)
+		}
+		p.Distinct = len(p.Values)
 		if p.Numeric {
 			slices.SortFunc(p.Values, func(a, b string) int {
 				x, _ := d.number(a)

@@ -184,6 +184,7 @@ func (r *reader) newRowTally(K int) *rowTally {
 	for i, l := range opt.Categories {
 		t.labels[l] = i
 	}
+	spellingsOf(opt.Categories, t.labels)
 	t.listSeen = make(ListValues, len(opt.Keep))
 	for i, k := range opt.Keep {
 		t.condCol[i] = slices.IndexFunc(r.cols, func(c usedCol) bool { return c.name == k.Column })
@@ -196,6 +197,7 @@ func (r *reader) newRowTally(K int) *rowTally {
 		for i, l := range lv {
 			t.levelIndex[col][l] = i
 		}
+		spellingsOf(lv, t.levelIndex[col])
 		t.levelSeen[col] = make([]float64, len(lv))
 	}
 	return t
@@ -206,7 +208,7 @@ func (r *reader) newRowTally(K int) *rowTally {
 func (r *reader) outsideSubset(t *rowTally, rec []string) (int, error) {
 	for i, seen := range t.listSeen {
 		if seen != nil && len(seen) < maxListValues {
-			if v := strings.TrimSpace(rec[r.cols[t.condCol[i]].index]); !seen[v] {
+			if v := boolKey(strings.TrimSpace(rec[r.cols[t.condCol[i]].index])); !seen[v] {
 				seen[strings.Clone(v)] = true
 			}
 		}
@@ -265,6 +267,9 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 				}
 				row.y = i
 				row.outLabel = cell
+				if ok {
+					row.outLabel = opt.Categories[i] // as declared: a boolean word in any spelling
+				}
 			} else {
 				if row.code, msg = parseCode(cell); msg != "" {
 					msg += formulaHint(cell)
@@ -755,7 +760,7 @@ func CheckListValues(file string, opt Options, seen ListValues) ([]string, error
 		k := opt.Keep[i]
 		declared := opt.PredictorLevels[k.Column]
 		for _, v := range k.Values {
-			if seen[v] || slices.Contains(declared, v) {
+			if seen[boolKey(v)] || slices.ContainsFunc(declared, func(l string) bool { return sameText(l, v) }) {
 				continue
 			}
 			var near []string

@@ -75,6 +75,16 @@ func openSheet(raw []byte, d Dialect) (*sheetRecords, string) {
 	sr := &sheetRecords{rows: rows[h-1:], first: h}
 	if files, x := workbookParts(raw, sheet); x != nil {
 		sr.formulas = scanFormulas(x)
+		scanBoolCells(x, func(col, row int) {
+			if row <= len(rows) && col <= len(rows[row-1]) {
+				switch rows[row-1][col-1] {
+				case "1":
+					rows[row-1][col-1] = boolText(true)
+				case "0":
+					rows[row-1][col-1] = boolText(false)
+				}
+			}
+		})
 		if styles, date1904 := timeStyles(files); styles != nil {
 			scanTimeCells(x, styles, func(col, row int, k timeKind) {
 				if row <= len(rows) && col <= len(rows[row-1]) {

@@ -152,6 +152,43 @@ func timeStyles(files map[string]*zip.File) (map[int]timeKind, bool) {
 // style shows a date or a time, with its column, row (both 1-based) and
 // what its format shows.
 func scanTimeCells(x []byte, styles map[int]timeKind, at func(col, row int, k timeKind)) {
+	eachCellTag(x, func(tag []byte) {
+		s, ok := attr(tag, "s")
+		if !ok {
+			return
+		}
+		style, err := strconv.Atoi(s)
+		if err != nil {
+			return
+		}
+		k := styles[style]
+		if k == showsNumber {
+			return
+		}
+		if t, ok := attr(tag, "t"); ok && t != "n" {
+			return // a text, a boolean, an error value: not a number
+		}
+		if col, row, ok := cellRef(append([]byte(" "), tag...)); ok {
+			at(col, row, k)
+		}
+	})
+}
+
+// scanBoolCells calls at for every boolean cell (type b) of a worksheet's
+// XML, with its column and row (both 1-based).
+func scanBoolCells(x []byte, at func(col, row int)) {
+	eachCellTag(x, func(tag []byte) {
+		if t, ok := attr(tag, "t"); ok && t == "b" {
+			if col, row, ok := cellRef(append([]byte(" "), tag...)); ok {
+				at(col, row)
+			}
+		}
+	})
+}
+
+// eachCellTag calls at with the attributes of every cell's start tag
+// (<c ...>) of a worksheet's XML, whatever its namespace prefix.
+func eachCellTag(x []byte, at func(tag []byte)) {
 	root := bytes.Index(x, []byte("worksheet"))
 	lt := bytes.LastIndexByte(x[:max(root, 0)], '<')
 	if root < 0 || lt < 0 {
@@ -168,25 +205,7 @@ func scanTimeCells(x []byte, styles map[int]timeKind, at func(col, row int, k ti
 		if end < 0 {
 			return
 		}
-		tag := rest[:end]
-		s, ok := attr(tag, "s")
-		if !ok {
-			continue
-		}
-		style, err := strconv.Atoi(s)
-		if err != nil {
-			continue
-		}
-		k := styles[style]
-		if k == showsNumber {
-			continue
-		}
-		if t, ok := attr(tag, "t"); ok && t != "n" {
-			continue // a text, a boolean, an error value: not a number
-		}
-		if col, row, ok := cellRef(append([]byte(" "), tag...)); ok {
-			at(col, row, k)
-		}
+		at(rest[:end])
 	}
 }
 

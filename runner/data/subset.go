@@ -41,9 +41,9 @@ func (c Condition) keeps(cell string, missing bool, d Dialect) (bool, string) {
 	}
 	switch c.Op {
 	case "in":
-		return slices.Contains(c.Values, cell), ""
+		return slices.ContainsFunc(c.Values, func(s string) bool { return sameText(s, cell) }), ""
 	case "not_in":
-		return !slices.Contains(c.Values, cell), ""
+		return !slices.ContainsFunc(c.Values, func(s string) bool { return sameText(s, cell) }), ""
 	}
 	v, msg := d.number(cell)
 	if msg != "" {
