@@ -162,9 +162,10 @@ func blankRow(rec []string) bool {
 }
 
 // zipSizes checks the sizes a workbook's ZIP container gives its parts
-// before excelize makes room for them: a part that claims more bytes than
-// its compressed bytes can hold (deflate expands at most about 1032 times)
-// is a broken or hostile file, whose claim would have the reader set aside
+// before excelize makes room for them: a part whose compressed bytes would
+// run past the end of the file, or that claims more bytes than its
+// compressed bytes can hold (deflate expands at most about 1032 times), is
+// a broken or hostile file, whose claim would have the reader set aside
 // gigabytes; "" when every claim can be true, or the container is not read
 // here (excelize then says why).
 func zipSizes(raw []byte) string {
@@ -173,6 +174,12 @@ func zipSizes(raw []byte) string {
 		return ""
 	}
 	for _, f := range zr.File {
+		// The compressed bytes themselves must lie inside the file: a
+		// claim beyond its end is believed by the expansion check below
+		// (gigabytes claimed from a file of a few kilobytes).
+		if start, err := f.DataOffset(); err == nil && (start > int64(len(raw)) || f.CompressedSize64 > uint64(int64(len(raw))-start)) {
+			return fmt.Sprintf("its part %s claims %d compressed bytes, more than the file's %d bytes hold", quoteCell(f.Name), f.CompressedSize64, len(raw))
+		}
 		if f.UncompressedSize64 > 1<<16 && (f.UncompressedSize64-1<<16)/1100 > f.CompressedSize64 {
 			return fmt.Sprintf("its part %s claims %d bytes, more than its %d compressed bytes can hold", quoteCell(f.Name), f.UncompressedSize64, f.CompressedSize64)
 		}
