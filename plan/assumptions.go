@@ -37,7 +37,44 @@ type Assumptions struct {
 	// Gaussian copula (the latent normal scores have these correlations).
 	Correlations []Correlation
 	Outcomes     []OutcomeAssumption
-	Line         int
+	// Missing says which simulated values are missing, column by column,
+	// in the order written.
+	Missing []MissingAssumption
+	Line    int
+}
+
+// MissingAssumption states how often one simulated column is missing and
+// on what: value i is missing with probability expit(c + sum_g s_g z_gi),
+// z_gi the given column g's value standardized (over the rows the plan
+// analyses; an outcome by its category number 1..J), c solved so that
+// the mean probability there is Proportion. No Given: completely at
+// random.
+type MissingAssumption struct {
+	Column     string
+	Key        string
+	Proportion float64
+	Given      []MissingGiven
+}
+
+// MissingGiven is one observed column the missingness depends on, with
+// its strength (log-odds per standard deviation).
+type MissingGiven struct {
+	Column   string
+	Strength float64
+	Key      string
+}
+
+// Mechanism describes the missingness in words: "completely at random",
+// or "at random given x (log-odds +1 per SD), y (...)".
+func (ma MissingAssumption) Mechanism() string {
+	if len(ma.Given) == 0 {
+		return "completely at random"
+	}
+	parts := make([]string, len(ma.Given))
+	for i, g := range ma.Given {
+		parts[i] = fmt.Sprintf("%s (log-odds %+g per SD)", g.Column, g.Strength)
+	}
+	return "at random given " + strings.Join(parts, ", ")
 }
 
 // PredictorAssumption says how one raw column is drawn.
@@ -102,6 +139,7 @@ var (
 	predAssumptionKeys = keysAt("assumptions.predictors")
 	outAssumptionKeys  = keysAt("assumptions.outcomes")
 	corrKeys           = keysAt("assumptions.correlations")
+	missAssumptionKeys = keysAt("assumptions.missing")
 )
 
 // decodeAssumptions reads the assumptions section.
@@ -132,7 +170,39 @@ func (d *decoder) decodeAssumptions(n *yaml.Node) *Assumptions {
 	if v := m.required("outcomes"); v != nil {
 		a.Outcomes = d.decodeOutcomeAssumptions(v, m.at("outcomes"))
 	}
+	if v := m.get("missing"); v != nil {
+		a.Missing = d.decodeMissingAssumptions(v, m.at("missing"))
+	}
 	return a
+}
+
+// decodeMissingAssumptions reads column: {proportion, given: {col: strength}}.
+func (d *decoder) decodeMissingAssumptions(n *yaml.Node, path string) []MissingAssumption {
+	var out []MissingAssumption
+	d.columnMap(n, path, "column: {proportion, given}", func(col, key string, v *yaml.Node) {
+		ma := MissingAssumption{Column: col, Key: key}
+		m := d.mapping(v, key, missAssumptionKeys)
+		if m == nil {
+			return
+		}
+		if pv := m.required("proportion"); pv != nil {
+			if x, ok := d.number(pv, m.at("proportion")); ok {
+				if !(x >= 0 && x < 1) {
+					d.errorf(deref(pv), m.at("proportion"), "a share of missing values must be at least 0 and below 1, got %s (at 1 the column would hold no value at all)", fmtNum(x))
+				}
+				ma.Proportion = x
+			}
+		}
+		if gv := m.get("given"); gv != nil {
+			d.columnMap(gv, m.at("given"), "column: strength (log-odds of being missing per standard deviation of the column)", func(g, gkey string, sv *yaml.Node) {
+				if s, ok := d.number(sv, gkey); ok {
+					ma.Given = append(ma.Given, MissingGiven{Column: g, Strength: s, Key: gkey})
+				}
+			})
+		}
+		out = append(out, ma)
+	})
+	return out
 }
 
 // columnMap walks a mapping keyed by column names.
@@ -429,6 +499,7 @@ func (d *decoder) checkAssumptions(p *Plan) {
 	d.checkTransforms(p)
 	d.checkGenerator(p)
 	d.checkCorrelations(p)
+	d.checkMissing(p)
 	seen := map[string]bool{}
 	for i := range a.Outcomes {
 		oa := &a.Outcomes[i]
@@ -472,6 +543,64 @@ func (d *decoder) checkAssumptions(p *Plan) {
 	for i, o := range p.Outcomes {
 		if !seen[o.Column] && d.clean("assumptions.outcomes") {
 			d.errAt("assumptions.outcomes", "outcome %s (outcomes[%d]) has no assumptions", quote(o.Column), i)
+		}
+	}
+}
+
+// checkMissing checks the stated missingness: each column an outcome or
+// a column the predictors read; each given column numeric (or an
+// outcome), another column, and never missing itself (missing at random
+// given a column needs its values observed); and a way to write a missing
+// value that the reader reads as missing.
+func (d *decoder) checkMissing(p *Plan) {
+	a := p.Assumptions
+	if len(a.Missing) == 0 {
+		return
+	}
+	used := p.UsedColumns()
+	var can []string
+	for _, u := range used {
+		if u.Role == RoleOutcome || u.Role == RolePredictor {
+			can = append(can, u.Column)
+		}
+	}
+	known := "outcomes and columns the predictors read: " + strings.Join(can, ", ")
+	missing := map[string]string{}
+	for _, ma := range a.Missing {
+		if ma.Proportion > 0 {
+			missing[ma.Column] = ma.Key
+		}
+	}
+	for _, ma := range a.Missing {
+		if !slices.Contains(can, ma.Column) {
+			what := "a column the plan does not read"
+			if u, ok := findUsed(used, ma.Column); ok {
+				what = "the plan's " + u.Role + " column (" + u.Key + "), which the simulation writes whole"
+			}
+			d.errAt(ma.Key, "%s is %s: missing values are simulated in an outcome or a column the predictors read (%s)", quote(ma.Column), what, known)
+			continue
+		}
+		if len(p.Data.MissingValues) == 0 && p.Data.MissingValues != nil {
+			if e := p.EntryOf(ma.Column); e == nil || len(e.Missing) == 0 {
+				d.errAt(ma.Key, "data.missing_values is empty, so no cell of %s reads as missing, and a simulated missing value could not be written: give data.missing_values a marker (such as \"NA\") or the column its own code (dictionary.%s.missing)", quote(ma.Column), ma.Column)
+			}
+		}
+		for _, g := range ma.Given {
+			u, ok := findUsed(used, g.Column)
+			switch {
+			case g.Column == ma.Column:
+				d.errAt(g.Key, "the missingness of %s cannot depend on its own values: a value missing because of what it is would be missing not at random, which neither dropping incomplete rows nor imputation corrects; name other columns it depends on", quote(ma.Column))
+			case !ok || (u.Role != RoleOutcome && u.Role != RolePredictor):
+				d.errAt(g.Key, "%s is not an outcome or a column the predictors read (%s)", quote(g.Column), known)
+			case p.CategoricalOf(g.Column) != nil:
+				d.errAt(g.Key, "%s is categorical: given takes numeric columns and outcomes, whose strength is per standard deviation", quote(g.Column))
+			case missing[g.Column] != "":
+				what := "column"
+				if u.Role == RoleOutcome {
+					what = "outcome"
+				}
+				d.errAt(g.Key, "missing at random given %s needs the %s observed in every row, but %s makes it missing too: the missingness would then depend on values that are themselves missing (not at random); give %s no missing values, or name another column", quote(g.Column), what, missing[g.Column], quote(g.Column))
+			}
 		}
 	}
 }
@@ -745,6 +874,21 @@ func (a *Assumptions) canonical() map[string]any {
 			cs = append(cs, map[string]any{"between": []string{c.A, c.B}, "r": c.R})
 		}
 		out["correlations"] = cs
+	}
+	if len(a.Missing) > 0 {
+		miss := map[string]any{}
+		for _, ma := range a.Missing {
+			m := map[string]any{"proportion": ma.Proportion}
+			if len(ma.Given) > 0 {
+				g := map[string]any{}
+				for _, x := range ma.Given {
+					g[x.Column] = x.Strength
+				}
+				m["given"] = g
+			}
+			miss[ma.Column] = m
+		}
+		out["missing"] = miss
 	}
 	return out
 }

@@ -43,6 +43,9 @@ func PowerOutputs(pr *simulate.PowerResult, reg *lock.Status) (map[string][]byte
 	d.p("**%s.** No real observation was used: `ordplan power` drew %d data sets at each sample size (%s) from the plan's `assumptions` and data dictionary (seed %d, %s model generating each outcome) and ran the plan's whole decision procedure on each: the grid of fits, the tests, the rules in order and the plan's hypotheses in the chosen model (Wald tests at alpha %g).%s Written by ordplan %s from the plan %s (sha256 `%s`).",
 		SimulatedMark, pr.Replicates, strings.Join(sizes, ", "), pr.Seed, pr.Generator, pr.Alpha, powerTests(pr), pr.Version, mdCode(pr.PlanFile), pr.PlanSHA256)
 	writeLockStatus(d, reg, pr.Version, powerLockWords)
+	if len(pr.Missing) > 0 {
+		d.p("%s In every replicate the plan's `data.missing` handled them as it will handle the real data's, so the rates below count the information the missing values take away.", simulatedMissingText(pr.Missing))
+	}
 	d.p("Every rate is a share of the %d replicates of a size, with its Monte Carlo standard error sqrt(p(1-p)/R) in brackets.", pr.Replicates)
 	for _, op := range pr.Outcomes {
 		d.h(2, "Outcome "+mdCode(op.Outcome))
@@ -56,7 +59,7 @@ func PowerOutputs(pr *simulate.PowerResult, reg *lock.Status) (map[string][]byte
 		corr = "other correlations between predictors (stated: " + strings.Join(pr.Correlations, "; ") + ", as correlations of normal scores; the other columns are drawn independently)"
 	}
 	d.list([]string{
-		"Power is computed under the stated assumptions only: other category proportions or effects, " + corr + ", missing values or clustering give other numbers.",
+		"Power is computed under the stated assumptions only: other category proportions or effects, " + corr + ", " + missingLimit(pr) + " or clustering give other numbers.",
 		"A hypothesis counts as rejected only in the model the rules chose; a replicate whose chosen model does not have the hypothesis's parameters, or where no model was chosen, counts as not rejected (the column \"not testable\").",
 		"The share of replicates choosing each model shows whether the rules find the structure that generated the data: a " + pr.Generator + " model with the stated parallel and nonparallel effects.",
 	})
@@ -200,4 +203,12 @@ func contains(xs []string, s string) bool {
 		}
 	}
 	return false
+}
+
+// missingLimit names the missing values the power study did not assume.
+func missingLimit(pr *simulate.PowerResult) string {
+	if len(pr.Missing) == 0 {
+		return "missing values (none were simulated; assumptions.missing states them)"
+	}
+	return "other shares or mechanisms of missing values (values missing not at random above all, which neither dropping incomplete rows nor imputation corrects)"
 }

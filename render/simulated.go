@@ -1,6 +1,8 @@
 package render
 
 import (
+	"fmt"
+	"strconv"
 	"strings"
 
 	"ordplan/render/numfmt"
@@ -26,6 +28,30 @@ func writeSimulated(d *doc, r *runner.Result) {
 	if s.Kept != nil {
 		d.p("The plan's subset (%s) kept %d of the %d simulated rows. The stated category proportions describe the rows the subset keeps, the population the plan analyses: the cutpoints were solved, and the design's constants set, on simulated rows that meet the subset.", strings.Join(s.Subset, "; "), *s.Kept, s.N)
 	}
+	if len(s.Missing) > 0 {
+		d.p("%s The run handled them as `data.missing` says, as it will handle the real data's missing values.", simulatedMissingText(s.Missing))
+	}
+}
+
+// simulatedMissingText says which missing values the simulation put into
+// the data (assumptions.missing), column by column: the stated share, the
+// mechanism, and in a rehearsal how many values were missing.
+func simulatedMissingText(ms []runner.SimulatedMissing) string {
+	parts := make([]string, len(ms))
+	marker := map[string]bool{}
+	for i, m := range ms {
+		t := fmt.Sprintf("%s %s%% %s", mdCode(m.Column), strconv.FormatFloat(100*m.Proportion, 'g', 4, 64), m.Mechanism)
+		if m.Count != nil {
+			t += fmt.Sprintf(" (%d of the %d rows analysed)", *m.Count, m.Of)
+		}
+		parts[i] = t
+		marker[m.Marker] = true
+	}
+	written := "an empty cell"
+	if len(marker) > 1 || !marker[""] {
+		written = "a missing-value marker of the plan (data.missing_values, or the column's own code)"
+	}
+	return fmt.Sprintf("Missing values were drawn into the simulated data as the assumptions state (`assumptions.missing`; under \"at random given\", the log-odds of a value being missing change by the stated strength per standard deviation of the named column, the constant set so that the stated share holds among the rows the plan analyses): %s. Each was written as %s.", strings.Join(parts, "; "), written)
 }
 
 // writeGenerating shows the model the simulated outcomes were drawn from,

@@ -16,6 +16,29 @@ type Simulation struct {
 	// Truth is each outcome's generating model, to hold the estimates
 	// against.
 	Truth []SimulatedModel `json:"generating,omitempty"`
+	// Missing is the missingness the assumptions state (assumptions.missing),
+	// column by column, with how many values were made missing.
+	Missing []SimulatedMissing `json:"missing,omitempty"`
+}
+
+// SimulatedMissing is the missingness simulated in one column: its stated
+// proportion and mechanism, the text written for a missing value, and
+// (in a rehearsal) how many of the rows the plan analyses lost the value.
+type SimulatedMissing struct {
+	Column     string         `json:"column"`
+	Proportion float64        `json:"proportion"`
+	Mechanism  string         `json:"mechanism"` // "completely at random" or "at random given ..."
+	Given      []MissingGiven `json:"given,omitempty"`
+	Marker     string         `json:"written_as"`
+	Count      *int           `json:"missing,omitempty"`
+	Of         int            `json:"of_rows,omitempty"`
+}
+
+// MissingGiven is a column the missingness depends on, with its strength:
+// the change of the log-odds of being missing per standard deviation.
+type MissingGiven struct {
+	Column   string  `json:"column"`
+	Strength float64 `json:"log_odds_per_sd"`
 }
 
 // SimulatedModel is the model one outcome was drawn from: the cutpoints

@@ -73,7 +73,8 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 		rows = *n
 	}
 	var buf bytes.Buffer
-	if err := sim.Write(&buf, rows, 0); err != nil {
+	missing, err := sim.WriteCounted(&buf, rows, 0)
+	if err != nil {
 		return fail(stderr, err)
 	}
 	tmp, err := os.MkdirTemp("", "ordplan-rehearse-")
@@ -103,6 +104,11 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 			res.Simulated.Subset = append(res.Simulated.Subset, c.String())
 		}
 	}
+	analysed := rows
+	if res.Simulated.Kept != nil {
+		analysed = *res.Simulated.Kept
+	}
+	res.Simulated.Missing = sim.MissingRecord(missing, analysed)
 	dec := runner.BuildDecisions(res)
 	files, err := render.Outputs(res, dec, nil)
 	if err != nil {

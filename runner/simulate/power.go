@@ -106,8 +106,11 @@ type PowerResult struct {
 	// Correlations stated between predictor columns ("a, b: r = 0.3"); the
 	// other columns are drawn independently.
 	Correlations []string `json:"correlations,omitempty"`
-	Replicates   int      `json:"replicates"`
-	Alpha        float64  `json:"alpha"`
+	// Missing is the missingness the assumptions state, drawn in every
+	// replicate (assumptions.missing).
+	Missing    []runner.SimulatedMissing `json:"missing,omitempty"`
+	Replicates int                       `json:"replicates"`
+	Alpha      float64                   `json:"alpha"`
 	// Multiplicity is the plan's correction of its hypotheses' p-values
 	// (inference.multiplicity: holm or benjamini_hochberg; "" for none):
 	// a hypothesis is rejected when its adjusted p-value is below Alpha,
@@ -163,6 +166,7 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 	for _, c := range p.Assumptions.Correlations {
 		res.Correlations = append(res.Correlations, fmt.Sprintf("%s, %s: r = %g", c.A, c.B, c.R))
 	}
+	res.Missing = sim.MissingRecord(nil, 0)
 	for _, oc := range p.Outcomes {
 		res.Outcomes = append(res.Outcomes, generating(p, oc, sim))
 	}

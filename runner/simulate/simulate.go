@@ -83,6 +83,8 @@ type Sim struct {
 	// Keep is the plan's subset; keepCol[i] the predictor Keep[i] reads.
 	Keep    []data.Condition
 	keepCol []int
+	// Missing is the stated missingness, column by column.
+	Missing []missingColumn
 	Weights string // columns written with constant values
 	Offset  string
 	Cluster string
@@ -136,6 +138,9 @@ func New(p *plan.Plan) (*Sim, error) {
 			return nil, err
 		}
 		s.Outcomes = append(s.Outcomes, o)
+	}
+	if err := s.prepareMissing(rows); err != nil {
+		return nil, err
 	}
 	return s, nil
 }
@@ -921,7 +926,19 @@ func (s *Sim) Header() []string {
 // Write writes a simulated data set of n rows as CSV. Replicate r of a
 // sample size gives the same rows whatever else is simulated.
 func (s *Sim) Write(w io.Writer, n int, replicate uint64) error {
+	_, err := s.WriteCounted(w, n, replicate)
+	return err
+}
+
+// WriteCounted is Write, giving also how many values of each column of
+// Missing it wrote as missing in the rows the plan's subset keeps. The
+// missing values are drawn from a stream of their own, so the values
+// that stay are those of the same data set without missingness.
+func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) ([]int, error) {
 	rng := rand.New(rand.NewPCG(s.seed, uint64(n)<<32^replicate^0x5eed))
+	mrng := rand.New(rand.NewPCG(s.seed, uint64(n)<<32^replicate^0x6d155))
+	counts := make([]int, len(s.Missing))
+	ys := make([]int, len(s.Outcomes))
 	bw := bufio.NewWriter(w)
 	h := s.Header()
 	for i, c := range h {
@@ -947,7 +964,7 @@ func (s *Sim) Write(w io.Writer, n int, replicate uint64) error {
 			o, c := &s.Outcomes[oi], &sc[oi]
 			o.raw(&r, c.raw)
 			if err := o.Design.Row(c.raw, c.x); err != nil {
-				return fmt.Errorf("%s: simulated row %d: %v", s.Plan.Path, i+1, err)
+				return nil, fmt.Errorf("%s: simulated row %d: %v", s.Plan.Path, i+1, err)
 			}
 			o.eta(c.x, c.e)
 			for m := range c.L {
@@ -959,12 +976,13 @@ func (s *Sim) Write(w io.Writer, n int, replicate uint64) error {
 				if pj < 0 && kept {
 					// The calibration sample did not reach these predictor
 					// values; a row there must not get a category anyway.
-					return fmt.Errorf("%s: assumptions.outcomes.%s.nonparallel: simulated row %d gets a negative probability of category %s: the stated effects make neighbouring boundaries cross at its predictor values; make the effects at neighbouring boundaries closer or give the predictors a range",
+					return nil, fmt.Errorf("%s: assumptions.outcomes.%s.nonparallel: simulated row %d gets a negative probability of category %s: the stated effects make neighbouring boundaries cross at its predictor values; make the effects at neighbouring boundaries closer or give the predictors a range",
 						s.Plan.Path, o.Column, i+1, o.Categories[j])
 				}
 				valid = valid && pj >= 0
 			}
 			u := rng.Float64()
+			ys[oi] = -1
 			if !valid {
 				// A row the subset leaves out is never analysed; where the
 				// model has no valid probabilities there it gets no category.
@@ -979,10 +997,25 @@ func (s *Sim) Write(w io.Writer, n int, replicate uint64) error {
 					break
 				}
 			}
+			ys[oi] = y
 			cells = append(cells, csvCell(o.Categories[y]))
 		}
 		for k := range s.Predictors {
 			cells = append(cells, csvCell(s.value(&r, k)))
+		}
+		for mi := range s.Missing {
+			mc := &s.Missing[mi]
+			if mrng.Float64() >= mc.prob(&r, ys) {
+				continue
+			}
+			at := mc.outcome
+			if at < 0 {
+				at = len(s.Outcomes) + mc.pred
+			}
+			cells[at] = csvCell(mc.marker)
+			if kept {
+				counts[mi]++
+			}
 		}
 		if s.Weights != "" {
 			cells = append(cells, "1")
@@ -1001,7 +1034,7 @@ func (s *Sim) Write(w io.Writer, n int, replicate uint64) error {
 		}
 		bw.WriteByte('\n')
 	}
-	return bw.Flush()
+	return counts, bw.Flush()
 }
 
 func csvCell(s string) string {
