@@ -126,6 +126,7 @@ func (d *decoder) decodeImputation(n *yaml.Node) *Imputation {
 		})
 	}
 	m.boolean("convergence_table", &im.ConvergenceTable)
+	m.boolean("write_sets", &im.WriteSets)
 	return im
 }
 

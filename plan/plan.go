@@ -82,6 +82,10 @@ type Imputation struct {
 	// Models gives columns their imputation model, in the plan's order.
 	Models           []ColumnModel
 	ConvergenceTable bool
+	// WriteSets writes the completed sets among the outputs
+	// (imputed-sets-OUTCOME.csv). Not in the canonical form: it changes
+	// which files a run writes, not the analysis.
+	WriteSets bool
 }
 
 // ColumnModel is one column's imputation model, as the plan names it.

@@ -24,7 +24,7 @@ var modelWords = map[chained.Method]string{
 // impute): the method, the sets, iterations and seed, each column's model,
 // the notes of the fits, the convergence summary when asked, and what
 // imputation assumes.
-func writeChained(d *doc, ch *runner.ChainedRecord, rows int, dz *design.Design) {
+func writeChained(d *doc, ch *runner.ChainedRecord, rows int, dz *design.Design, setsFile string) {
 	d.p("The imputed sets were made by this run by chained equations (fully conditional specification; van Buuren 2018): %d sets, each after %d iterations through the incomplete columns, with seed %d (set s draws from its own stream, so the sets do not depend on the number of workers). Of the %d rows, %d (%s) had a missing value in the outcome or a predictor column and were imputed rather than dropped. Each incomplete column was imputed from a model of it given the outcome and every other column used, as main effects of the raw columns; its parameters were drawn from their approximate posterior for every imputation, so that the sets reflect the uncertainty of the imputation model. Columns were visited in the order %s (fewest missing values first).",
 		ch.Sets, ch.Iterations, ch.Seed, rows, ch.RowsIncomplete, sharePct(ch.RowsIncomplete, rows), codeList(ch.Visits))
 	var tab [][]string
@@ -50,6 +50,11 @@ func writeChained(d *doc, ch *runner.ChainedRecord, rows int, dz *design.Design)
 		}
 		d.p("Convergence: after every iteration, the mean and SD of each column's imputed values (averaged over the sets; categorical columns as level indexes from 0) and the SD of the set means across sets. The values should wander without a trend over the last iterations; a trend calls for more iterations.")
 		d.captioned("Imputed values by iteration").table([]string{"Column", "Iteration", "Mean", "SD", "SD of set means"}, tr)
+	}
+	if setsFile != "" {
+		d.p("The %d completed sets the fits used are in %s, one after another (the column imputed_set numbers them; data_line is the row's line in the data file), for checking the imputations or analysing the sets elsewhere.", ch.Sets, mdCode(setsFile))
+	} else {
+		d.p("The completed sets are not among the outputs; `data.imputation.write_sets: true` writes them, for checking the imputations or analysing the sets elsewhere.")
 	}
 	d.p("Multiple imputation assumes that the values are missing at random given the columns in the imputation models: whether a value is missing may depend on the outcome and the other columns observed, not on the missing value itself. That assumption cannot be checked from the data; if missingness depends on the unseen values (missing not at random), the pooled estimates can be biased, and a sensitivity analysis is needed.")
 }

@@ -296,7 +296,11 @@ func writeImputation(d *doc, or *runner.OutcomeResult, sampling bool) {
 		d.captioned("Pooling of "+f.ID).table([]string{"Parameter", "Estimate", "Within SD", "Between SD", "SE", "df", "RIV", "FMI"}, rows)
 	}
 	if im.Chained != nil {
-		writeChained(d, im.Chained, im.Rows, or.Design)
+		setsFile := ""
+		if im.WritesSets() {
+			setsFile = imputedSetsFile(or)
+		}
+		writeChained(d, im.Chained, im.Rows, or.Design, setsFile)
 		return
 	}
 	d.p("Multiple imputation assumes that the values are missing at random given the variables used to impute them: whether a value is missing may depend on what was observed, not on the missing value itself. The imputation model must include the outcome and every term of these models (their transformations and interactions too); otherwise the pooled effects are biased towards zero. The imputed sets were made outside this run, and their imputation model is not checked here.")

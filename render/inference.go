@@ -107,7 +107,20 @@ func writeNewRows(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 func lvText(level float64) string { return fmt.Sprintf("%g", 100*level) }
 
 func predictionsFile(or *runner.OutcomeResult) string {
-	col := or.Outcome.Column
+	return outcomeFile("predictions", or.Outcome.Column)
+}
+
+// imputedSetsFile names the file of an outcome's completed imputed sets
+// (data.imputation.write_sets) as predictionsFile names its predictions.
+func imputedSetsFile(or *runner.OutcomeResult) string {
+	return outcomeFile("imputed-sets", or.Outcome.Column)
+}
+
+// outcomeFile names an outcome's file PREFIX-OUTCOME.csv: characters
+// other than letters, digits, '-' and '_' become '_', and a name so
+// changed gets 8 hex digits of the outcome's SHA-256, so that outcomes
+// differing only there get distinct files.
+func outcomeFile(prefix, col string) string {
 	name := []rune(col)
 	changed := false
 	for i, c := range name {
@@ -118,9 +131,9 @@ func predictionsFile(or *runner.OutcomeResult) string {
 	}
 	if changed {
 		h := sha256.Sum256([]byte(col))
-		return "predictions-" + string(name) + "-" + hex.EncodeToString(h[:4]) + ".csv"
+		return prefix + "-" + string(name) + "-" + hex.EncodeToString(h[:4]) + ".csv"
 	}
-	return "predictions-" + string(name) + ".csv"
+	return prefix + "-" + string(name) + ".csv"
 }
 
 // predictionsCSV writes the predictions for new rows: the row's line in

@@ -60,6 +60,19 @@ func Outputs(r *runner.Result, dec *runner.Decisions, changes []string) (map[str
 			owner[key] = or.Outcome.Column
 			files[name] = predictionsCSV(r, or)
 		}
+		sets, err := or.Imputed.CompletedSetsCSV()
+		if err != nil {
+			return nil, fmt.Errorf("the imputed sets of %q: %w", or.Outcome.Column, err)
+		}
+		if sets != nil {
+			name := imputedSetsFile(or)
+			key := strings.ToLower(name)
+			if prev, dup := owner[key]; dup {
+				return nil, fmt.Errorf("outcomes %q and %q would write the same imputed sets file %s", prev, or.Outcome.Column, name)
+			}
+			owner[key] = or.Outcome.Column
+			files[name] = sets
+		}
 	}
 	return files, nil
 }

@@ -355,6 +355,9 @@ func writeFilesSection(d *doc, r *runner.Result) {
 		if or.NewRows != nil && or.NewRows.Pred != nil {
 			rows = append(rows, []string{predictionsFile(or), "predictions of the chosen model for the plan's new rows"})
 		}
+		if ir := or.Imputed; ir != nil && ir.WritesSets() {
+			rows = append(rows, []string{imputedSetsFile(or), md(fmt.Sprintf("the %d completed data sets the fits of %s used (data.imputation.write_sets), one after another: imputed_set numbers them, data_line is the row's line in the data file, then the outcome and the columns its terms read, categories and levels as the data write them, numbers to the digits that read back exactly; split by imputed_set to analyse each set", ir.M, mdCode(or.Outcome.Column)))})
+		}
 	}
 	d.captioned("Files written by this run").table([]string{"File", "Content"}, rows)
 }

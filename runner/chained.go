@@ -75,6 +75,10 @@ func chainedSets(a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Data
 		notes = append(notes, fmt.Sprintf("The frequency weights count identical units: for imputation each of the %d rows was expanded into as many rows as its weight, %d rows in all, and every unit was imputed on its own; the imputed sets and their row counts are those of the expanded rows", rows, ds.N))
 	}
 	im := a.Imputation
+	if im.WriteSets && ds.N*im.Sets > maxWrittenRows {
+		return nil, nil, nil, fmt.Errorf("%s: data.imputation.write_sets: the %d imputed sets of outcome %q would hold %d rows of %d each, %d in all, more than the %d ordplan writes into the output folder (the file is made in memory before it is written, with every other output, all or nothing): impute fewer sets (data.imputation.sets), or leave write_sets off",
+			a.Source, im.Sets, r.Outcome, ds.N, ds.N, ds.N*im.Sets, maxWrittenRows)
+	}
 	cols := chainedColumns(im, r, ds)
 	stream := uint64(slices.IndexFunc(a.Outcomes, func(o Reading) bool { return o.Outcome == r.Outcome }))
 	cfg := chained.Config{Sets: im.Sets, Iterations: im.Iterations, Seed: im.Seed, Stream: stream, Donors: chainedDonors, Workers: opt.Workers}
@@ -97,6 +101,9 @@ func chainedSets(a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Data
 		Chained: &ChainedRecord{Outcome: r.Outcome, Method: "chained equations", Sets: im.Sets, Iterations: im.Iterations, Seed: im.Seed,
 			Stream: stream, Donors: chainedDonors, RowsIncomplete: ds.Incomplete, Visits: res.Visits, Models: res.Models, Trace: res.Trace,
 			Notes: append(notes, res.Notes...), ConvergenceTable: im.ConvergenceTable}}
+	if im.WriteSets {
+		run.completed = func() ([]byte, error) { return completedCSV(sets, r) }
+	}
 	for k, set := range sets {
 		run.sources = append(run.sources, setSource{name: fmt.Sprintf("imputed set %d of %s.csv", k+1, r.Outcome),
 			bytes: func() ([]byte, error) { return setCSV(set, r.Options) }, options: setOptions(set, r.Options)})
@@ -107,6 +114,95 @@ func chainedSets(a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Data
 // maxExpanded bounds the rows frequency weights expand into for
 // imputation.
 const maxExpanded = 5_000_000
+
+// maxWrittenRows bounds the rows of all the completed sets one outcome
+// writes (data.imputation.write_sets).
+const maxWrittenRows = 5_000_000
+
+// CompletedSetsCSV gives the completed sets of an outcome imputed by
+// chained equations as one CSV text (data.imputation.write_sets), or nil
+// when the plan does not ask for them.
+func (ir *ImputedRun) CompletedSetsCSV() ([]byte, error) {
+	if ir == nil || ir.completed == nil {
+		return nil, nil
+	}
+	return ir.completed()
+}
+
+// WritesSets reports whether the run writes the completed sets
+// (CompletedSetsCSV).
+func (ir *ImputedRun) WritesSets() bool { return ir != nil && ir.completed != nil }
+
+// completedCSV writes the completed sets one after another in one table,
+// for reading elsewhere: imputed_set (1..m), the row's data_line in the
+// data file (with data.parts, data_part, the part's file, first), the
+// outcome by its category label, each raw column the terms read
+// (categorical columns by their level labels, numbers in the shortest
+// form that reads back to the same float64), the offset and the cluster
+// when the plan has them. The index columns take a trailing "_" until
+// their names differ from the data's columns.
+func completedCSV(sets []*data.Dataset, r Reading) ([]byte, error) {
+	first := sets[0]
+	cols := append([]string{r.Options.Outcome}, r.Options.Predictors...)
+	if first.Offset != nil {
+		cols = append(cols, r.Options.Offset)
+	}
+	if first.Cluster != nil {
+		cols = append(cols, r.Options.Cluster)
+	}
+	unique := func(name string) string {
+		for slices.Contains(cols, name) {
+			name += "_"
+		}
+		return name
+	}
+	header := []string{unique("imputed_set")}
+	if first.Parts != nil {
+		header = append(header, unique("data_part"))
+	}
+	header = append(header, unique("data_line"))
+	lead := len(header)
+	header = append(header, cols...)
+	var buf bytes.Buffer
+	w := csv.NewWriter(&buf)
+	if err := w.Write(header); err != nil {
+		return nil, err
+	}
+	num := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+	row := make([]string, len(header))
+	for s, ds := range sets {
+		row[0] = strconv.Itoa(s + 1)
+		for i := 0; i < ds.N; i++ {
+			file, line := ds.Place(ds.Lines[i])
+			if first.Parts != nil {
+				row[1] = file
+			}
+			row[lead-1] = strconv.Itoa(line)
+			row[lead] = ds.Categories[ds.Y[i]]
+			for k := 0; k < ds.K; k++ {
+				x := ds.X[i*ds.K+k]
+				if c := r.Design.Sources[k].Cat; c != nil {
+					row[lead+1+k] = c.Levels[int(x)]
+				} else {
+					row[lead+1+k] = num(x)
+				}
+			}
+			c := lead + 1 + ds.K
+			if ds.Offset != nil {
+				row[c] = num(ds.Offset[i])
+				c++
+			}
+			if ds.Cluster != nil {
+				row[c] = ds.Cluster[i]
+			}
+			if err := w.Write(row); err != nil {
+				return nil, err
+			}
+		}
+	}
+	w.Flush()
+	return buf.Bytes(), w.Error()
+}
 
 // expandCounts turns frequency weights into rows: a row of weight w
 // becomes w rows of weight 1, so that each unit the row counts is imputed

@@ -46,6 +46,9 @@ type ImputedRun struct {
 	// names say where each set is read, for messages ("imp.csv (imp =
 	// 2)", or the set's file).
 	names []string
+	// completed writes the completed sets for the outputs
+	// (data.imputation.write_sets; nil otherwise).
+	completed func() ([]byte, error)
 }
 
 // setSource is an imputed set as a data file a job can name: its name

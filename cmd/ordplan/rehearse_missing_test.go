@@ -1,0 +1,147 @@
+package main
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// imputingPlan imputes its missing values (data.missing: impute), writes
+// the completed sets, and states missing values for the rehearsal: x
+// completely at random, z at random given the outcome.
+const imputingPlan = `version: 1
+seed: 42
+data:
+  file: data.csv
+  missing: impute
+  imputation: {sets: 3, iterations: 3, write_sets: true}
+outcomes:
+  - column: y
+    categories: ["1", "2", "3"]
+categorical:
+  g: {levels: [a, b, c]}
+predictors: [x, z, g]
+models: {approaches: [cumulative], effects: [parallel], links: [logit]}
+rules:
+  - choose: {by: bic}
+assumptions:
+  n: 300
+  predictors:
+    x: {mean: 0, sd: 1}
+    z: {mean: 0, sd: 1}
+  outcomes:
+    y:
+      proportions: [0.3, 0.4, 0.3]
+      effects: {x: 0.8, z: -0.5, g: {b: 0.5, c: 1}}
+  missing:
+    x: {proportion: 0.2}
+    z: {proportion: 0.3, given: {y: 1.0}}
+`
+
+// A rehearsal of a plan that imputes runs the imputation path on the
+// simulated missing values: decisions.json pools the fits of the imputed
+// sets, the simulated file has the missing cells, the report and run.json
+// say what was simulated, and the completed sets are among the outputs
+// with their hash in run.json. A power study of the same plan imputes in
+// every replicate and says so.
+func TestRehearseImputes(t *testing.T) {
+	dir := t.TempDir()
+	planPath := filepath.Join(dir, "plan.yaml")
+	if err := os.WriteFile(planPath, []byte(imputingPlan), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "reh")
+	if _, errs, code := runCLI("rehearse", planPath, "--quiet", "--out", out); code != 0 {
+		t.Fatalf("rehearse: exit %d: %s", code, errs)
+	}
+	var dec struct {
+		Outcomes []struct {
+			Imputation *struct {
+				Sets    int    `json:"sets"`
+				Source  string `json:"source"`
+				Pooling []struct {
+					Model string `json:"model"`
+				} `json:"pooling"`
+				Imputation *struct {
+					RowsIncomplete int `json:"rows_incomplete"`
+				} `json:"imputation"`
+			} `json:"imputation"`
+		} `json:"outcomes"`
+	}
+	b, err := os.ReadFile(filepath.Join(out, "decisions.json"))
+	if err != nil || json.Unmarshal(b, &dec) != nil {
+		t.Fatalf("decisions.json: %v", err)
+	}
+	im := dec.Outcomes[0].Imputation
+	if im == nil || im.Sets != 3 || len(im.Pooling) == 0 || im.Imputation == nil || im.Imputation.RowsIncomplete == 0 {
+		t.Fatalf("decisions.json does not pool imputed sets: %+v", im)
+	}
+	sim, _ := os.ReadFile(filepath.Join(out, "simulated-data.csv"))
+	if !strings.Contains(string(sim), ",,") {
+		t.Error("the simulated data have no empty cell")
+	}
+	report, _ := os.ReadFile(filepath.Join(out, "report.md"))
+	for _, w := range []string{"`x` 20% completely at random (", "`z` 30% at random given y (log-odds +1 per SD) (", "The 3 completed sets the fits used are in `imputed-sets-y.csv`"} {
+		if !strings.Contains(string(report), w) {
+			t.Errorf("report.md lacks %q", w)
+		}
+	}
+	var run struct {
+		Outputs map[string]string `json:"outputs_sha256"`
+	}
+	b, _ = os.ReadFile(filepath.Join(out, "run.json"))
+	if err := json.Unmarshal(b, &run); err != nil {
+		t.Fatal(err)
+	}
+	var simulated struct {
+		Simulated *struct {
+			Missing []struct {
+				Column string `json:"column"`
+				Count  *int   `json:"missing"`
+			} `json:"missing"`
+		} `json:"simulated_data"`
+	}
+	b, _ = os.ReadFile(filepath.Join(out, "decisions.json"))
+	if err := json.Unmarshal(b, &simulated); err != nil {
+		t.Fatal(err)
+	}
+	sets, err := os.ReadFile(filepath.Join(out, "imputed-sets-y.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	h := sha256.Sum256(sets)
+	if run.Outputs["imputed-sets-y.csv"] != hex.EncodeToString(h[:]) {
+		t.Errorf("run.json's hash of imputed-sets-y.csv %q", run.Outputs["imputed-sets-y.csv"])
+	}
+	if n := strings.Count(string(sets), "\n"); n != 1+3*300 {
+		t.Errorf("imputed-sets-y.csv has %d lines", n)
+	}
+	if s := simulated.Simulated; s == nil || len(s.Missing) != 2 || s.Missing[0].Count == nil || *s.Missing[0].Count == 0 {
+		t.Errorf("decisions.json's record of the simulated missing values: %+v", s)
+	}
+	pout := filepath.Join(dir, "pow")
+	if _, errs, code := runCLI("power", planPath, "--n", "100", "--replicates", "2", "--quiet", "--out", pout); code != 0 {
+		t.Fatalf("power: exit %d: %s", code, errs)
+	}
+	pm, _ := os.ReadFile(filepath.Join(pout, "power.md"))
+	if !strings.Contains(string(pm), "`z` 30% at random given y (log-odds +1 per SD)") {
+		t.Errorf("power.md:\n%s", pm)
+	}
+	var pj struct {
+		Outcomes []struct {
+			Sizes []struct {
+				Failed struct {
+					Count int `json:"count"`
+				} `json:"failed"`
+			} `json:"sizes"`
+		} `json:"outcomes"`
+	}
+	b, _ = os.ReadFile(filepath.Join(pout, "power.json"))
+	if json.Unmarshal(b, &pj) != nil || pj.Outcomes[0].Sizes[0].Failed.Count != 0 {
+		t.Errorf("power.json: replicates failed: %s", b)
+	}
+}
