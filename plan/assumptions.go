@@ -580,6 +580,9 @@ func (d *decoder) checkMissing(p *Plan) {
 			d.errAt(ma.Key, "%s is %s: missing values are simulated in an outcome or a column the predictors read (%s)", quote(ma.Column), what, known)
 			continue
 		}
+		if p.Data.Missing == "refuse" && ma.Proportion > 0 {
+			d.errAt(ma.Key, "the assumptions make %s missing, but data.missing is refuse, so a run stops at the first missing value: every simulated data set would stop there; handle the missing values (data.missing: drop or impute) or state none (proportion: 0)", quote(ma.Column))
+		}
 		if len(p.Data.MissingValues) == 0 && p.Data.MissingValues != nil {
 			if e := p.EntryOf(ma.Column); e == nil || len(e.Missing) == 0 {
 				d.errAt(ma.Key, "data.missing_values is empty, so no cell of %s reads as missing, and a simulated missing value could not be written: give data.missing_values a marker (such as \"NA\") or the column its own code (dictionary.%s.missing)", quote(ma.Column), ma.Column)

@@ -113,7 +113,13 @@ func predictionsFile(or *runner.OutcomeResult) string {
 // imputedSetsFile names the file of an outcome's completed imputed sets
 // (data.imputation.write_sets) as predictionsFile names its predictions.
 func imputedSetsFile(or *runner.OutcomeResult) string {
-	return outcomeFile("imputed-sets", or.Outcome.Column)
+	return ImputedSetsFile(or.Outcome.Column)
+}
+
+// ImputedSetsFile names the file of the completed sets of an outcome,
+// known from the plan before anything is computed.
+func ImputedSetsFile(outcome string) string {
+	return outcomeFile("imputed-sets", outcome)
 }
 
 // outcomeFile names an outcome's file PREFIX-OUTCOME.csv: characters

@@ -76,8 +76,8 @@ func chainedSets(a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Data
 	}
 	im := a.Imputation
 	if im.WriteSets && ds.N*im.Sets > maxWrittenRows {
-		return nil, nil, nil, fmt.Errorf("%s: data.imputation.write_sets: the %d imputed sets of outcome %q would hold %d rows of %d each, %d in all, more than the %d ordplan writes into the output folder (the file is made in memory before it is written, with every other output, all or nothing): impute fewer sets (data.imputation.sets), or leave write_sets off",
-			a.Source, im.Sets, r.Outcome, ds.N, ds.N, ds.N*im.Sets, maxWrittenRows)
+		return nil, nil, nil, fmt.Errorf("%s: data.imputation.write_sets: the %d imputed sets of outcome %q, %d rows each, would write %d rows, more than the %d ordplan writes into the output folder (the file is made in memory and written with the other outputs, all or nothing): impute fewer sets (data.imputation.sets), or leave write_sets off",
+			a.Source, im.Sets, r.Outcome, ds.N, ds.N*im.Sets, maxWrittenRows)
 	}
 	cols := chainedColumns(im, r, ds)
 	stream := uint64(slices.IndexFunc(a.Outcomes, func(o Reading) bool { return o.Outcome == r.Outcome }))

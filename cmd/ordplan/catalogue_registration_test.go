@@ -166,6 +166,9 @@ func registrationItems() []badInput {
 		{id: "A22", name: "missing values stated where nothing reads as missing", args: []string{"check", "--no-data"}, code: 1,
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  missing_values: []\n") + assumed("{a: 0.2}", "  missing: {b: {proportion: 0.2}}\n"),
 			want: []string{`assumptions.missing.b: data.missing_values is empty, so no cell of "b" reads as missing, and a simulated missing value could not be written: give data.missing_values a marker (such as "NA") or the column its own code (dictionary.b.missing)`}},
+		{id: "A23", name: "missing values stated while the plan refuses them", args: []string{"power", "--n", "100"}, code: 1,
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  missing: refuse\n") + assumed("{a: 0.2}", "  missing: {b: {proportion: 0.2}}\n"),
+			want: []string{`assumptions.missing.b: the assumptions make "b" missing, but data.missing is refuse, so a run stops at the first missing value: every simulated data set would stop there; handle the missing values (data.missing: drop or impute) or state none (proportion: 0)`}},
 		{id: "R5", name: "ordplan init over an existing file", args: []string{"init", "--header", "y,a"}, plan: goodPlan, code: 1,
 			want: []string{"init: R5.yaml already exists; ordplan init never overwrites a file"},
 			check: func(t *testing.T, dir, out, errs string) {

@@ -472,6 +472,25 @@ func fractionalWeight(t *testing.T, dir, id string) {
 	os.WriteFile(filepath.Join(dir, "fracw.csv"), []byte(strings.Join(lines, "\n")+"\n"), 0o644)
 }
 
+// manyRows writes many.csv: d.csv's rows five times (600 rows), b
+// missing in the fourth.
+func manyRows(t *testing.T, dir, id string) {
+	t.Helper()
+	b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+	out := []string{lines[0]}
+	for range 5 {
+		out = append(out, lines[1:]...)
+	}
+	f := strings.Split(out[4], ",")
+	f[2] = ""
+	out[4] = strings.Join(f, ",")
+	os.WriteFile(filepath.Join(dir, "many.csv"), []byte(strings.Join(out, "\n")+"\n"), 0o644)
+}
+
 func imputedFiles(t *testing.T, dir, id string) {
 	t.Helper()
 	b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
@@ -658,6 +677,24 @@ func catalogue(dir string) (items []badInput) {
 		{id: "I18", name: "normal draws for a column whose logarithm a term takes", args: []string{"check", "--no-data"},
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  missing: impute\n  imputation: {column_models: {b: normal_draw}}\n", "predictors: [a, b]", "predictors: [a, {name: lb, column: b, log: {}}]"), code: 1,
 			want: []string{`I18.yaml:5:35: data.imputation.column_models.b: normal_draw draws b from a normal distribution, which can give values at or below 0, where log(b) of the term lb (predictors[1]) is undefined: a run would stop on the first such draw; impute b by mean_matching (the default), which imputes values observed in the data` + "\n"}},
+		{id: "I22", name: "rehearsing a plan whose imputed sets were made elsewhere", args: []string{"rehearse"},
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp.csv, column: imp}\n") + assumed("{a: 0.2}", ""), code: 1,
+			want: []string{`I22.yaml: data.imputed names imputed sets made elsewhere from the real data (imp.csv); simulated data have no such sets, so the plan's pooled analysis cannot be run on them: to rehearse it, use a copy of the plan with data.missing: impute in place of data.imputed (the program then imputes the simulated data itself) and the expected missing values under assumptions.missing`}},
+		{id: "O10", name: "completed sets too many rows to write", args: []string{"run"}, setup: manyRows,
+			plan: edit("  file: d.csv\n", "  file: many.csv\n  missing: impute\n  imputation: {sets: 10000, write_sets: true}\n"), code: 1,
+			want: []string{`O10.yaml: data.imputation.write_sets: the 10000 imputed sets of outcome "y", 600 rows each, would write 6000000 rows, more than the 5000000 ordplan writes into the output folder (the file is made in memory and written with the other outputs, all or nothing): impute fewer sets (data.imputation.sets), or leave write_sets off`}},
+		{id: "O11", name: "the user's own file under the name of the completed sets", args: []string{"run"}, setup: func(t *testing.T, dir, id string) {
+			manyRows(t, dir, id)
+			os.MkdirAll(filepath.Join(dir, "O11-out"), 0o755)
+			os.WriteFile(filepath.Join(dir, "O11-out", "imputed-sets-y.csv"), []byte("my own sets\n"), 0o644)
+		},
+			plan: edit("  file: d.csv\n", "  file: many.csv\n  missing: impute\n  imputation: {sets: 2, iterations: 2, write_sets: true}\n"), code: 1,
+			want: []string{`imputed-sets-y.csv`},
+			check: func(t *testing.T, dir, out, errs string) {
+				if b, _ := os.ReadFile(filepath.Join(dir, "O11-out", "imputed-sets-y.csv")); string(b) != "my own sets\n" {
+					t.Errorf("the user's file was changed: %q", b)
+				}
+			}},
 		{id: "I16", name: "imputation settings without impute", args: []string{"check"},
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputation: {sets: 5}\n"), code: 1,
 			want: []string{`data.imputation: is used only with data.missing: impute (data.missing is "drop")`}},

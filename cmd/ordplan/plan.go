@@ -6,6 +6,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 
 	"ordplan/plan"
@@ -113,7 +114,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 		base := filepath.Base(planPath)
 		dir = filepath.Join("out", base[:len(base)-len(filepath.Ext(base))])
 	}
-	lock, err := claimOutput(dir, "run", render.ReportFiles, stderr)
+	lock, err := claimOutput(dir, "run", reportFiles(p), stderr)
 	if err != nil {
 		return fail(stderr, err)
 	}
@@ -282,4 +283,18 @@ func refuseUnedited(p *plan.Plan, stderr io.Writer) bool {
 	fmt.Fprintf(stderr, "ordplan freeze: %s still has %d place(s) marked %s by ordplan init (guesses from the data such as the order of the categories, or placeholders); a registered plan states the analyst's own choices: check each place, delete its marker, then freeze\n",
 		p.Path, len(p.Unedited), plan.EditMarker)
 	return true
+}
+
+// reportFiles are the names a run (or a rehearsal) of the plan writes
+// that are known before anything is computed: the report's, and the
+// completed imputed sets' when the plan asks for them
+// (data.imputation.write_sets).
+func reportFiles(p *plan.Plan) []string {
+	names := slices.Clone(render.ReportFiles)
+	if im := p.Data.Imputation; p.Data.Imputes() && im != nil && im.WriteSets {
+		for _, o := range p.Outcomes {
+			names = append(names, render.ImputedSetsFile(o.Column))
+		}
+	}
+	return names
 }

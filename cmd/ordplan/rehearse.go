@@ -6,7 +6,6 @@ import (
 	"io"
 	"os"
 	"path/filepath"
-	"slices"
 
 	"ordplan/plan"
 	"ordplan/render"
@@ -59,7 +58,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 		base := filepath.Base(planPath)
 		dir = filepath.Join("out", base[:len(base)-len(filepath.Ext(base))]+"-rehearsal")
 	}
-	olock, err := claimOutput(dir, "rehearse", slices.Concat(render.ReportFiles, []string{simulatedFile}), stderr)
+	olock, err := claimOutput(dir, "rehearse", append(reportFiles(p), simulatedFile), stderr)
 	if err != nil {
 		return fail(stderr, err)
 	}

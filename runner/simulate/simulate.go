@@ -97,6 +97,13 @@ func New(p *plan.Plan) (*Sim, error) {
 	if a == nil {
 		return nil, fmt.Errorf("%s: the plan has no assumptions section: state the category proportions and the effects to simulate from (see the README, \"Rehearse and size the study\")", p.Path)
 	}
+	if im := p.Data.Imputed; im != nil {
+		sets := im.File
+		if sets == "" {
+			sets = strings.Join(im.Files, ", ")
+		}
+		return nil, fmt.Errorf("%s: data.imputed names imputed sets made elsewhere from the real data (%s); simulated data have no such sets, so the plan's pooled analysis cannot be run on them: to rehearse it, use a copy of the plan with data.missing: impute in place of data.imputed (the program then imputes the simulated data itself) and the expected missing values under assumptions.missing", p.Path, sets)
+	}
 	link, err := fit.ParseLink(a.Link)
 	if err != nil {
 		return nil, fmt.Errorf("%s: assumptions.link: %v", p.Path, err)
