@@ -30,10 +30,22 @@ type Inference struct {
 	// Profile gives predictor values for marginal effects "profile";
 	// predictors not listed are held at their means.
 	Profile []ProfileValue
+	// LevelPairs asks for comparisons between every pair of levels of
+	// some categorical predictors (nil: none).
+	LevelPairs *LevelPairs
 	// Predict names a CSV file of new rows (predictor columns) whose
 	// predictions by the chosen model are written to predictions.csv.
 	Predict     string
 	PredictPath string // resolved against the plan's folder
+}
+
+// LevelPairs is inference.level_pairs: the categorical columns whose
+// levels are compared pair by pair, and the correction of the p-values of
+// each family of pairs (one predictor's pairs for one outcome category, or
+// at one boundary): MultiplicityHolm by default.
+type LevelPairs struct {
+	Predictors   []string
+	Multiplicity string
 }
 
 // Multiplicity corrections.
@@ -130,6 +142,9 @@ func (d *decoder) decodeInference(n *yaml.Node, inf *Inference, dir string) {
 			}
 		}
 	}
+	if v := m.get("level_pairs"); v != nil {
+		inf.LevelPairs = d.decodeLevelPairs(v, m.at("level_pairs"))
+	}
 	if v := m.get("predict"); v != nil {
 		if s, ok := d.text(v, m.at("predict")); ok {
 			inf.Predict = s
@@ -139,6 +154,70 @@ func (d *decoder) decodeInference(n *yaml.Node, inf *Inference, dir string) {
 			}
 		}
 	}
+}
+
+// decodeLevelPairs reads inference.level_pairs.
+func (d *decoder) decodeLevelPairs(n *yaml.Node, path string) *LevelPairs {
+	lp := &LevelPairs{Multiplicity: MultiplicityHolm}
+	m := d.mapping(n, path, keysAt("inference.level_pairs"))
+	if m == nil {
+		return nil
+	}
+	if v := m.required("predictors"); v != nil && d.nonEmpty(v, m.at("predictors"), "categorical column") {
+		if names, ok := d.names(v, m.at("predictors")); ok {
+			lp.Predictors = names
+		}
+	}
+	m.word("multiplicity", "multiplicity correction", multiplicityWords, &lp.Multiplicity)
+	return lp
+}
+
+// checkLevelPairs checks that each column of inference.level_pairs is a
+// categorical column the predictors read with three or more levels the
+// subset keeps.
+func (d *decoder) checkLevelPairs(p *Plan) {
+	lp := p.Inference.LevelPairs
+	if lp == nil || !d.clean("inference.level_pairs.predictors") {
+		return
+	}
+	for i, col := range lp.Predictors {
+		key := itemPath("inference.level_pairs.predictors", i)
+		c := p.categorical(col)
+		if !slices.Contains(p.SourceColumns(), col) || c == nil {
+			if !d.clean("predictors") || !d.clean("categorical") {
+				continue
+			}
+			var cats []string
+			for _, cc := range p.Categorical {
+				if slices.Contains(p.SourceColumns(), cc.Column) {
+					cats = append(cats, cc.Column)
+				}
+			}
+			what := "is not a column the predictors read"
+			if slices.Contains(p.SourceColumns(), col) {
+				what = "is a numeric column"
+			}
+			d.errAt(key, "%s %s: level pairs compare the levels of a categorical column the predictors read (%s)", quote(col), what, listOrNone(cats))
+			continue
+		}
+		var kept []string
+		for _, l := range c.Levels {
+			if excludedBy(p, col, l) == nil {
+				kept = append(kept, l)
+			}
+		}
+		if len(kept) < 3 {
+			d.errAt(key, "%s has %d levels the rows used can have (%s): its only pair is the level against the reference, which the marginal effects and odds ratios already give; level pairs need three or more levels", quote(col), len(kept), strings.Join(kept, ", "))
+		}
+	}
+}
+
+// listOrNone joins names with commas, or says there are none.
+func listOrNone(names []string) string {
+	if len(names) == 0 {
+		return "there is none"
+	}
+	return strings.Join(names, ", ")
 }
 
 // checkInference checks the section against the predictors.
@@ -171,6 +250,7 @@ func (d *decoder) checkInference(p *Plan) {
 			d.errAt(key, "want a finite number, got %s", quote(a.written))
 		}
 	}
+	d.checkLevelPairs(p)
 	hasProfile := slices.Contains(inf.MarginalEffects, "profile")
 	if hasProfile && len(inf.Profile) == 0 {
 		d.errAt("inference.marginal_effects", "marginal effects at a profile need inference.profile (predictor: value, ...)")
@@ -187,6 +267,13 @@ type canonInference struct {
 	MarginalEffects []string       `json:"marginal_effects"`
 	Profile         map[string]any `json:"profile,omitempty"`
 	Predict         *string        `json:"predict"`
+	LevelPairs      *canonPairs    `json:"level_pairs,omitempty"`
+}
+
+// canonPairs is the canonical form of inference.level_pairs.
+type canonPairs struct {
+	Predictors   []string `json:"predictors"`
+	Multiplicity string   `json:"multiplicity"`
 }
 
 func (inf *Inference) canonical() canonInference {
@@ -202,6 +289,9 @@ func (inf *Inference) canonical() canonInference {
 				c.Profile[a.Predictor] = a.Level
 			}
 		}
+	}
+	if lp := inf.LevelPairs; lp != nil {
+		c.LevelPairs = &canonPairs{Predictors: lp.Predictors, Multiplicity: lp.Multiplicity}
 	}
 	if inf.Predict != "" {
 		s := inf.Predict

@@ -69,6 +69,9 @@ func runInference(an *Analysis, or *OutcomeResult) error {
 	for _, kind := range inf.MarginalEffects {
 		or.Marginal = append(or.Marginal, marginalSet(an, or, res, kind))
 	}
+	or.LevelPairs = levelPairSets(an, or, res, func(s int, levels []string) MarginalSet {
+		return pairEffects(or, res, s, levels, an.Level)
+	})
 	if inf.PredictPath != "" {
 		nr, err := readNewRows(an, or)
 		if err != nil {
@@ -145,18 +148,6 @@ func sourceEffects(or *OutcomeResult, res *fit.Result, raw []float64, n int, off
 	S, K := len(dz.Sources), len(dz.Columns)
 	var out []fit.MarginalEffect
 	var notes []string
-	design := func(set func(r []float64)) ([]float64, error) {
-		X := make([]float64, n*K)
-		r := make([]float64, S)
-		for i := 0; i < n; i++ {
-			copy(r, raw[i*S:(i+1)*S])
-			set(r)
-			if err := dz.Row(r, X[i*K:(i+1)*K]); err != nil {
-				return nil, err
-			}
-		}
-		return X, nil
-	}
 	for s, src := range dz.Sources {
 		if src.Cat != nil || or.binarySource(s) {
 			from, tos, labels := 0.0, []float64{1}, []string{"0 to 1"}
@@ -170,12 +161,12 @@ func sourceEffects(or *OutcomeResult, res *fit.Result, raw []float64, n int, off
 					}
 				}
 			}
-			X0, err := design(func(r []float64) { r[s] = from })
+			X0, err := atValue(dz, raw, n, s, from)
 			if err != nil {
 				return nil, nil, err
 			}
 			for t, to := range tos {
-				X1, err := design(func(r []float64) { r[s] = to })
+				X1, err := atValue(dz, raw, n, s, to)
 				if err != nil {
 					return nil, nil, err
 				}

@@ -54,6 +54,40 @@ func MultiplicityName(method string) string {
 	return "Holm's step-down correction (family-wise error rate)"
 }
 
+// adjustP adjusts p-values by the plan's correction method (holm or
+// benjamini_hochberg), in the order given.
+func adjustP(method string, ps []float64) []float64 {
+	if method == plan.MultiplicityBH {
+		return BHAdjust(ps)
+	}
+	return HolmAdjust(ps)
+}
+
+// adjustFamilies adjusts the p-values p(0..n-1) by method within each
+// family, the items of one key, and returns them in the order given.
+func adjustFamilies(method string, n int, key func(int) string, p func(int) float64) []float64 {
+	out := make([]float64, n)
+	members := map[string][]int{}
+	var keys []string
+	for i := 0; i < n; i++ {
+		k := key(i)
+		if _, ok := members[k]; !ok {
+			keys = append(keys, k)
+		}
+		members[k] = append(members[k], i)
+	}
+	for _, k := range keys {
+		ps := make([]float64, len(members[k]))
+		for j, i := range members[k] {
+			ps[j] = p(i)
+		}
+		for j, v := range adjustP(method, ps) {
+			out[members[k][j]] = v
+		}
+	}
+	return out
+}
+
 // sortedIndex orders the indices by p, ties in the order given.
 func sortedIndex(p []float64) []int {
 	idx := make([]int, len(p))
@@ -97,13 +131,8 @@ func adjustHypotheses(an *Analysis, res *Result) {
 			ps = append(ps, hr.Test.P)
 		}
 	}
-	var adj []float64
+	adj := adjustP(method, ps)
 	name := MultiplicityName(method)
-	if method == plan.MultiplicityBH {
-		adj = BHAdjust(ps)
-	} else {
-		adj = HolmAdjust(ps)
-	}
 	for k, r := range refs {
 		v := adj[k]
 		hr := &res.Outcomes[r.or].Hypotheses[r.h]

@@ -65,7 +65,8 @@ func (or *OutcomeResult) chosenPerSet() ([]*fit.Result, error) {
 	return out, nil
 }
 
-// runPooledInference computes the marginal effects and the predictions
+// runPooledInference computes the marginal effects, the differences of
+// average marginal effects between pairs of levels and the predictions
 // for new rows the plan asks for on every imputed set and pools them.
 func runPooledInference(an *Analysis, or *OutcomeResult) error {
 	if or.Chosen == nil {
@@ -88,6 +89,16 @@ func runPooledInference(an *Analysis, or *OutcomeResult) error {
 		}
 		or.Marginal = append(or.Marginal, poolMarginal(sets, dfc, an.Level))
 	}
+	or.LevelPairs = levelPairSets(an, or, or.Chosen.Result, func(s int, levels []string) MarginalSet {
+		if ferr != nil {
+			return MarginalSet{Kind: "level_pairs", Error: ferr.Error()}
+		}
+		sets := make([]MarginalSet, len(fits))
+		for k, r := range fits {
+			sets[k] = pairEffects(or.onSet(k), r, s, levels, an.Level)
+		}
+		return poolMarginal(sets, dfc, an.Level)
+	})
 	if inf.PredictPath == "" {
 		return nil
 	}

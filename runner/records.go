@@ -76,6 +76,9 @@ type OutcomeDecisions struct {
 	GOFPooling *GOFPooling        `json:"goodness_of_fit_pooling,omitempty"`
 	Hypotheses []HypothesisResult `json:"hypotheses,omitempty"`
 	Marginal   []MarginalSet      `json:"marginal_effects,omitempty"`
+	// LevelPairs: comparisons between every pair of levels of the
+	// categorical predictors of inference.level_pairs.
+	LevelPairs []LevelPairSet `json:"level_pairs,omitempty"`
 	// Terms: how each predictor term became design columns, with every
 	// constant frozen from the data (omitted when every term is a numeric
 	// column as it is).
@@ -242,6 +245,7 @@ func BuildDecisions(r *Result) *Decisions {
 		od.GOFPooling = or.GOFPooling
 		od.Hypotheses = or.Hypotheses
 		od.Marginal = or.Marginal
+		od.LevelPairs = or.LevelPairs
 		d.Outcomes = append(d.Outcomes, od)
 	}
 	return d

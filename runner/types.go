@@ -67,9 +67,10 @@ type OutcomeResult struct {
 
 	Hypotheses []HypothesisResult // the plan's hypotheses, per model
 
-	dataOptions data.Options  // how Data was read (rules read further columns the same way)
-	Marginal    []MarginalSet // marginal effects of the chosen model
-	NewRows     *NewRows      // predictions for the plan's new rows
+	dataOptions data.Options   // how Data was read (rules read further columns the same way)
+	Marginal    []MarginalSet  // marginal effects of the chosen model
+	LevelPairs  []LevelPairSet // pairs of levels of categorical predictors (inference.level_pairs)
+	NewRows     *NewRows       // predictions for the plan's new rows
 
 	// Imputed is set when the outcome was analysed on multiply imputed
 	// data: Data is then imputed set 1 with the original file's table of

@@ -60,20 +60,10 @@ type OddsRatio struct {
 // delta method (b_mk = phi_m g_k is bilinear: db/dg = phi_m, db/dphi_m =
 // g_k).
 func (r *Result) OddsRatios(level float64) ([]OddsRatio, error) {
-	if r.Model.Link != Logit {
-		return nil, fmt.Errorf("odds ratios exist for logit links only, not %s", r.Model.Link)
-	}
-	if !r.OK() || r.Cov == nil {
-		return nil, fmt.Errorf("%s has no usable estimates (%s)", r.Name, r.Status)
-	}
-	if !(level > 0 && level < 1) {
-		return nil, fmt.Errorf("confidence level %g outside (0, 1)", level)
-	}
-	ly, err := newLayout(r.Model, r.J, r.Predictors)
+	ly, err := r.oddsRatioLayout(level)
 	if err != nil {
 		return nil, err
 	}
-	q, P := r.J-1, len(r.Estimates)
 	kind := OddsRatioKind(r.Model)
 	var out []OddsRatio
 	add := func(k, m int, g []float64) {
@@ -83,31 +73,138 @@ func (r *Result) OddsRatios(level float64) ([]OddsRatio, error) {
 		out = append(out, OddsRatio{Predictor: r.Predictors[k], Boundary: m, Kind: kind, Log: b, LogSE: se,
 			Ratio: math.Exp(b), Low: math.Exp(b - z*se), High: math.Exp(b + z*se)})
 	}
-	for k, e := range r.Model.Effects {
-		s := ly.slope[k]
-		switch e {
-		case Parallel:
+	for k := range r.Model.Effects {
+		gs := r.slopeGradients(ly, k)
+		if len(gs) == 1 {
+			add(k, 0, gs[0])
+			continue
+		}
+		for m, g := range gs {
+			add(k, m+1, g)
+		}
+	}
+	return out, nil
+}
+
+// oddsRatioLayout checks that fit r has odds ratios at the level (a usable
+// logit fit) and gives its parameters' layout.
+func (r *Result) oddsRatioLayout(level float64) (*layout, error) {
+	if r.Model.Link != Logit {
+		return nil, fmt.Errorf("odds ratios exist for logit links only, not %s", r.Model.Link)
+	}
+	if !r.OK() || r.Cov == nil {
+		return nil, fmt.Errorf("%s has no usable estimates (%s)", r.Name, r.Status)
+	}
+	if !(level > 0 && level < 1) {
+		return nil, fmt.Errorf("confidence level %g outside (0, 1)", level)
+	}
+	return newLayout(r.Model, r.J, r.Predictors)
+}
+
+// slopeGradients gives the gradient in the parameters of column k's slope
+// b_mk: one (the same at every boundary) for a parallel column, one per
+// boundary for a nonparallel or constrained one (b_mk = phi_m g_k is
+// bilinear: db/dg = phi_m, db/dphi_m = g_k), none for another structure.
+func (r *Result) slopeGradients(ly *layout, k int) [][]float64 {
+	q, P := r.J-1, len(r.Estimates)
+	s := ly.slope[k]
+	switch r.Model.Effects[k] {
+	case Parallel:
+		g := make([]float64, P)
+		g[s] = 1
+		return [][]float64{g}
+	case Nonparallel:
+		out := make([][]float64, q)
+		for m := range out {
+			out[m] = make([]float64, P)
+			out[m][s+m] = 1
+		}
+		return out
+	case Constrained:
+		grp := ly.groupOf[k]
+		phi := ly.phi(r.Estimates, grp)
+		out := make([][]float64, q)
+		for m := range out {
 			g := make([]float64, P)
-			g[s] = 1
-			add(k, 0, g)
-		case Nonparallel:
-			for m := 0; m < q; m++ {
-				g := make([]float64, P)
-				g[s+m] = 1
-				add(k, m+1, g)
+			g[s] = phi[m]
+			if m > 0 {
+				g[ly.phiIndex[grp][m]] = r.Estimates[s]
 			}
-		case Constrained:
-			grp := ly.groupOf[k]
-			phi := ly.phi(r.Estimates, grp)
-			for m := 0; m < q; m++ {
-				g := make([]float64, P)
-				g[s] = phi[m]
-				if m > 0 {
-					g[ly.phiIndex[grp][m]] = r.Estimates[s]
-				}
-				add(k, m+1, g)
+			out[m] = g
+		}
+		return out
+	}
+	return nil
+}
+
+// CombinedOddsRatio is exp(sum_k d_k b_mk), the odds ratio of a change
+// that moves several model columns at once (one level of a categorical
+// predictor against another: the difference of the two levels' coded
+// columns), with the Wald z (or t on a pooled fit) of its log and the
+// two-sided p-value.
+type CombinedOddsRatio struct {
+	OddsRatio
+	Z float64 `json:"z"`
+	P float64 `json:"p"`
+}
+
+// OddsRatioOf is the odds ratio exp(sum_k d_k b_mk) of a logit fit for the
+// change d of its model columns (len(d) columns, in the fit's order),
+// named name: one value at every boundary (Boundary 0) when every column d
+// moves is parallel, else one per boundary. Its log's standard error is the
+// delta method's on the whole covariance, sum_k d_k times each slope's
+// gradient; the reference of the interval and p-value is as for the
+// odds ratios (see Inference).
+func (r *Result) OddsRatioOf(name string, d []float64, level float64) ([]CombinedOddsRatio, error) {
+	if len(d) != len(r.Predictors) {
+		return nil, fmt.Errorf("a change of %d columns, the fit has %d", len(d), len(r.Predictors))
+	}
+	ly, err := r.oddsRatioLayout(level)
+	if err != nil {
+		return nil, err
+	}
+	q, P := r.J-1, len(r.Estimates)
+	bounds := 1
+	for k, dk := range d {
+		if dk == 0 {
+			continue
+		}
+		switch r.Model.Effects[k] {
+		case Parallel:
+		case Nonparallel, Constrained:
+			bounds = q
+		default:
+			return nil, fmt.Errorf("column %s has no odds ratio of its own in %s", r.Predictors[k], r.Name)
+		}
+	}
+	kind := OddsRatioKind(r.Model)
+	out := make([]CombinedOddsRatio, bounds)
+	for m := range out {
+		b, g := 0.0, make([]float64, P)
+		for k, dk := range d {
+			if dk == 0 {
+				continue
+			}
+			gs := r.slopeGradients(ly, k)
+			gk := gs[min(m, len(gs)-1)]
+			b += dk * r.Effects[m][k]
+			for a, v := range gk {
+				g[a] += dk * v
 			}
 		}
+		se := math.Sqrt(quadForm(g, r.Cov))
+		df := r.referenceDF(g)
+		z := TQuantile(0.5+level/2, df)
+		o := CombinedOddsRatio{OddsRatio: OddsRatio{Predictor: name, Boundary: m + 1, Kind: kind, Log: b, LogSE: se,
+			Ratio: math.Exp(b), Low: math.Exp(b - z*se), High: math.Exp(b + z*se)}, P: 1}
+		if bounds == 1 {
+			o.Boundary = 0
+		}
+		if se > 0 {
+			o.Z = b / se
+			o.P = TSurvival2(o.Z, df)
+		}
+		out[m] = o
 	}
 	return out, nil
 }

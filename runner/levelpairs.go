@@ -1,0 +1,249 @@
+package runner
+
+import (
+	"fmt"
+	"slices"
+	"strings"
+
+	"ordplan/plan"
+	"ordplan/runner/design"
+	"ordplan/runner/fit"
+)
+
+// Comparisons between every pair of levels of a categorical predictor
+// (the plan's inference.level_pairs), in the chosen model. The levels are
+// listed reference first, then the other kept levels in their declared
+// order, and pair (a, b) is taken for a before b in that list: so the
+// first pairs are the reference against each level, the same computation
+// (and the same numbers) as the marginal effects and odds ratios against
+// the reference, and a pair of two other levels b, c is the difference of
+// their effects against the reference: effect(c) - effect(b).
+
+// LevelPairSet is the comparisons between the pairs of levels of one
+// categorical predictor in the chosen model.
+type LevelPairSet struct {
+	Predictor string `json:"predictor"`
+	// Levels are the kept levels, reference first.
+	Levels []string `json:"levels"`
+	// Effects are the differences of average marginal effects, change "a
+	// to b": the probability of each category with every row's predictor
+	// at b less that with it at a, averaged over the rows used, the other
+	// predictors as observed; pooled over imputed sets as the marginal
+	// effects are (Effects.Pooling).
+	Effects MarginalSet `json:"average_marginal_effects"`
+	// EffectsAdjusted are the p-values of Effects adjusted for
+	// multiplicity within each category's pairs (nil when not adjusted).
+	EffectsAdjusted []float64 `json:"average_marginal_effects_adjusted_p,omitempty"`
+	// OddsRatios are exp of the difference of the two levels' log odds
+	// (logit link; empty otherwise), change "b against a".
+	OddsRatios []PairOddsRatio `json:"odds_ratios,omitempty"`
+	// OddsRatioNote says why there are no odds ratios, when the link is
+	// the logit and there are none.
+	OddsRatioNote string `json:"odds_ratio_note,omitempty"`
+	// Multiplicity is the correction of the p-values within each family
+	// (none, holm, benjamini_hochberg); Family the number of pairs.
+	Multiplicity string `json:"multiplicity"`
+	Family       int    `json:"pairs"`
+	// Note says why no pair was computed (fewer than three levels kept,
+	// no term of its own).
+	Note string `json:"note,omitempty"`
+}
+
+// PairOddsRatio is the odds ratio of one level against another.
+type PairOddsRatio struct {
+	fit.CombinedOddsRatio
+	Change   string   `json:"change"`
+	HoldsAt  string   `json:"holds_at,omitempty"`
+	Adjusted *float64 `json:"adjusted_p,omitempty"`
+}
+
+// pairLevels gives the kept levels of categorical source s, reference
+// first, or why its levels are not compared.
+func pairLevels(dz *design.Design, s int) ([]string, string) {
+	kept, ref := dz.Coded(s)
+	if kept == nil {
+		return nil, "the column has no categorical term of its own (it enters only an interaction), so its levels are not compared"
+	}
+	levels := []string{ref}
+	for _, l := range kept {
+		if l != ref {
+			levels = append(levels, l)
+		}
+	}
+	if len(levels) < 3 {
+		return levels, fmt.Sprintf("the rows used have %d of its levels (%s), whose one pair is the comparison with the reference the marginal effects already give", len(levels), strings.Join(levels, ", "))
+	}
+	return levels, ""
+}
+
+// levelPairSets compares the levels of every column of the plan's
+// inference.level_pairs in fit res (the chosen model; on imputed data the
+// pooled fit), the average marginal effects by effects (one data set's, or
+// those pooled over the sets).
+func levelPairSets(an *Analysis, or *OutcomeResult, res *fit.Result, effects func(s int, levels []string) MarginalSet) []LevelPairSet {
+	lp := an.Inference.LevelPairs
+	if lp == nil || or.Design == nil {
+		return nil
+	}
+	var out []LevelPairSet
+	for _, col := range lp.Predictors {
+		s := or.Design.Source(col)
+		if s < 0 {
+			continue // a column only another outcome's terms read
+		}
+		set := LevelPairSet{Predictor: col, Multiplicity: lp.Multiplicity}
+		set.Levels, set.Note = pairLevels(or.Design, s)
+		if set.Note != "" {
+			out = append(out, set)
+			continue
+		}
+		k := len(set.Levels)
+		set.Family = k * (k - 1) / 2
+		set.Effects = effects(s, set.Levels)
+		if set.Effects.Error == "" && lp.Multiplicity != plan.MultiplicityNone {
+			set.EffectsAdjusted = adjustFamilies(lp.Multiplicity, len(set.Effects.Effects),
+				func(e int) string { return set.Effects.Effects[e].Category },
+				func(e int) float64 { return set.Effects.Effects[e].P })
+		}
+		if res.Model.Link == fit.Logit {
+			set.OddsRatios, set.OddsRatioNote = pairOddsRatios(or, res, s, set.Levels, an.Level)
+			if lp.Multiplicity != plan.MultiplicityNone && len(set.OddsRatios) > 0 {
+				adj := adjustFamilies(lp.Multiplicity, len(set.OddsRatios),
+					func(e int) string { return fmt.Sprint(set.OddsRatios[e].Boundary) },
+					func(e int) float64 { return set.OddsRatios[e].P })
+				for e := range set.OddsRatios {
+					set.OddsRatios[e].Adjusted = &adj[e]
+				}
+			}
+		}
+		out = append(out, set)
+	}
+	return out
+}
+
+// eachPair calls f for every pair (a, b) of levels, a before b.
+func eachPair(levels []string, f func(a, b string) error) error {
+	for i, a := range levels {
+		for _, b := range levels[i+1:] {
+			if err := f(a, b); err != nil {
+				return err
+			}
+		}
+	}
+	return nil
+}
+
+// pairEffects is the differences of average marginal effects of every pair
+// of levels of categorical source s over the outcome's rows, by fit res:
+// each pair by fit.AverageDifference from the rows with the column at a
+// to the rows with it at b, so the delta method runs on the whole
+// covariance of the model.
+func pairEffects(or *OutcomeResult, res *fit.Result, s int, levels []string, level float64) MarginalSet {
+	set := MarginalSet{Kind: "level_pairs"}
+	dz, d := or.Design, or.Data
+	name := dz.Sources[s].Name
+	var X0 []float64
+	from := ""
+	err := eachPair(levels, func(a, b string) error {
+		var err error
+		if a != from {
+			if X0, err = atValue(dz, d.X, d.N, s, float64(dz.Level(s, a))); err != nil {
+				return err
+			}
+			from = a
+		}
+		X1, err := atValue(dz, d.X, d.N, s, float64(dz.Level(s, b)))
+		if err != nil {
+			return err
+		}
+		eff, err := res.AverageDifference(name, X0, X1, d.Offset, d.Weights, level)
+		if err != nil {
+			return err
+		}
+		for i := range eff {
+			eff[i].Change = a + " to " + b
+		}
+		set.Effects = append(set.Effects, eff...)
+		return nil
+	})
+	if err != nil {
+		set.Effects, set.Error = nil, err.Error()
+	}
+	return set
+}
+
+// pairOddsRatios is the odds ratio of every pair of levels of categorical
+// source s in logit fit res: exp of the change of the linear predictor
+// from level a to level b through the columns of the column's own term
+// (the difference of the two levels' coded columns, whatever the coding),
+// where the terms it interacts with have their columns at 0.
+func pairOddsRatios(or *OutcomeResult, res *fit.Result, s int, levels []string, level float64) ([]PairOddsRatio, string) {
+	dz := or.Design
+	var term *design.Term
+	for i := range dz.Terms {
+		if t := &dz.Terms[i]; t.Kind == design.KindCategorical && t.Source == s {
+			term = t
+		}
+	}
+	idx := make([]int, len(term.Columns))
+	for i, c := range term.Columns {
+		if idx[i] = slices.Index(res.Predictors, c); idx[i] < 0 {
+			return nil, fmt.Sprintf("the chosen model has no column %s", c)
+		}
+	}
+	holds := ""
+	for _, r := range or.ColumnReadings() {
+		if r.Column == term.Columns[0] {
+			holds = r.Where
+		}
+	}
+	raw := or.representative(nil, false)
+	row := func(l string) ([]float64, error) {
+		raw[s] = float64(dz.Level(s, l))
+		x := make([]float64, len(dz.Columns))
+		return x, dz.Row(raw, x)
+	}
+	var out []PairOddsRatio
+	err := eachPair(levels, func(a, b string) error {
+		xa, err := row(a)
+		if err != nil {
+			return err
+		}
+		xb, err := row(b)
+		if err != nil {
+			return err
+		}
+		d := make([]float64, len(res.Predictors))
+		for i, c := range idx {
+			d[c] = xb[term.First+i] - xa[term.First+i]
+		}
+		ors, err := res.OddsRatioOf(dz.Sources[s].Name, d, level)
+		if err != nil {
+			return err
+		}
+		for _, o := range ors {
+			out = append(out, PairOddsRatio{CombinedOddsRatio: o, Change: b + " against " + a, HoldsAt: holds})
+		}
+		return nil
+	})
+	if err != nil {
+		return nil, err.Error()
+	}
+	return out, ""
+}
+
+// atValue is the design of the n raw rows (n x S) with raw column s set to
+// v in every row.
+func atValue(dz *design.Design, raw []float64, n, s int, v float64) ([]float64, error) {
+	S, K := len(dz.Sources), len(dz.Columns)
+	X := make([]float64, n*K)
+	r := make([]float64, S)
+	for i := 0; i < n; i++ {
+		copy(r, raw[i*S:(i+1)*S])
+		r[s] = v
+		if err := dz.Row(r, X[i*K:(i+1)*K]); err != nil {
+			return nil, err
+		}
+	}
+	return X, nil
+}
