@@ -228,6 +228,9 @@ func writeMethods(d *doc, r *runner.Result) {
 		case starts:
 			s = append(s, fmt.Sprintf("The random starts of constrained fits used the seed %d.", p.Seed))
 		}
+		if lp := levelPairsMethods(or); lp != "" {
+			s = append(s, lp)
+		}
 		d.p("%s", strings.Join(s, " "))
 	}
 	d.p("References:")

@@ -36,6 +36,7 @@ func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	writeHypotheses(d, r, or)
 	writePredictions(d, r, or)
 	writeMarginalEffects(d, r, or)
+	writeLevelPairs(d, r, or)
 	writeNewRows(d, r, or)
 }
 

@@ -298,6 +298,13 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		about += "; at: the point of effects at the means or at the plan's profile (every column the predictors read)"
 		add("marginal-effects", about, head, rows)
 	}
+	if len(or.LevelPairs) > 0 {
+		about := "comparisons between every pair of levels of the categorical predictors of inference.level_pairs in the chosen model with " + lv + "% intervals: differences of average marginal effects (change a to b: the probability with the predictor at b less that at a, averaged over the rows used) and odds ratios of one level against another (estimate: the ratio; std_error and z: of its log; boundary 0: the same at every boundary); adjusted_p: the p-value adjusted by adjustment within the predictor's pairs for one category or at one boundary"
+		if or.Imputed != nil {
+			about += "; differences pooled over the imputed sets (t intervals on df; df empty when infinite)"
+		}
+		add("level-pairs", about, []string{"predictor", "kind", "change", "category", "boundary", "estimate", "std_error", "z", "p", "adjusted_p", "adjustment", "low_" + lv, "high_" + lv, "df"}, levelPairsCSV(or))
+	}
 	// Predicted probabilities over the focus predictor.
 	if pf, err := newProfile(or, focusName(r), nil); err == nil {
 		xs := pf.grid(chartPoints)
