@@ -1,6 +1,7 @@
 package plan
 
 import (
+	"fmt"
 	"math"
 	"path/filepath"
 	"slices"
@@ -200,14 +201,20 @@ func (d *decoder) checkLevelPairs(p *Plan) {
 			d.errAt(key, "%s %s: level pairs compare the levels of a categorical column the predictors read (%s)", quote(col), what, listOrNone(cats))
 			continue
 		}
-		var kept []string
+		var kept, out []string
 		for _, l := range c.Levels {
-			if excludedBy(p, col, l) == nil {
+			if sc := excludedBy(p, col, l); sc != nil {
+				out = append(out, fmt.Sprintf("%s leaves out %s", sc.Key, quote(l)))
+			} else {
 				kept = append(kept, l)
 			}
 		}
 		if len(kept) < 3 {
-			d.errAt(key, "%s has %d levels the rows used can have (%s): its only pair is the level against the reference, which the marginal effects and odds ratios already give; level pairs need three or more levels", quote(col), len(kept), strings.Join(kept, ", "))
+			why := ""
+			if len(out) > 0 {
+				why = "; " + strings.Join(out, ", ")
+			}
+			d.errAt(key, "%s has %d levels the rows used can have (%s%s): its only pair is the level against the reference, which the marginal effects and odds ratios already give; level pairs need three or more levels", quote(col), len(kept), strings.Join(kept, ", "), why)
 		}
 	}
 }

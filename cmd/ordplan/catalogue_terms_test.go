@@ -219,6 +219,30 @@ func termItems(dir string) []badInput {
 					t.Errorf("a level in another case: exit %d\n%s\nwant %s", code, e, want)
 				}
 			}},
+		{id: "P44", name: "level pairs of a categorical column with two levels", args: []string{"check", "--no-data"},
+			plan: termsEdit("site: {levels: [north, east, south]}", "site: {levels: [north, east, south]}\n  side: {levels: [left, right]}", "[site, x]", "[site, side, x]", "rules:", "inference: {level_pairs: {predictors: [site, side]}}\nrules:"), code: 1,
+			want: []string{`P44.yaml:10:46: inference.level_pairs.predictors[1]: "side" has 2 levels the rows used can have (left, right): its only pair is the level against the reference, which the marginal effects and odds ratios already give; level pairs need three or more levels` + "\n"}},
+		{id: "T21", name: "level pairs of a categorical column the subset leaves two levels of", args: []string{"check", "--no-data"}, setup: writeTermsData,
+			plan: termsEdit("predictors:", "subset:\n  - {column: site, none_of: [south]}\npredictors:", "south]}", "south], unobserved: drop}", "rules:", "inference: {level_pairs: {predictors: [site]}}\nrules:"), code: 1,
+			want: []string{`T21.yaml:11:40: inference.level_pairs.predictors[0]: "site" has 2 levels the rows used can have (north, east; subset[0] leaves out "south"): its only pair is the level against the reference, which the marginal effects and odds ratios already give; level pairs need three or more levels` + "\n"}},
+		{id: "T22", name: "level pairs of a categorical column whose rows have two of its levels (a level dropped: unobserved: drop)", args: []string{"run"},
+			setup: func(t *testing.T, dir, _ string) {
+				writeTermsData(t, dir, "")
+				b, err := os.ReadFile(filepath.Join(dir, "cat.csv"))
+				if err != nil {
+					t.Fatal(err)
+				}
+				os.WriteFile(filepath.Join(dir, "nosouth.csv"), []byte(strings.ReplaceAll(string(b), ",south,", ",east,")), 0o644)
+			},
+			plan: termsEdit("cat.csv", "nosouth.csv", "south]}", "south], unobserved: drop}", "rules:", "inference: {level_pairs: {predictors: [site]}}\nrules:"), code: 0,
+			want: []string{"y: chosen: cumulative/parallel/logit"},
+			check: func(t *testing.T, dir, out, errs string) {
+				b, err := os.ReadFile(filepath.Join(dir, "T22-out", "report.md"))
+				want := `Not compared: the rows used have 2 of its levels (north, east), whose one pair is the comparison with the reference the marginal effects already give.`
+				if err != nil || !strings.Contains(string(b), want) {
+					t.Errorf("report.md does not say why site's levels are not compared (%v); want %q", err, want)
+				}
+			}},
 		{id: "T14", name: "a subset that leaves out a declared level", args: []string{"check", "--no-data"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: site, none_of: [south]}\npredictors:"), code: 1,
 			want: []string{`T14.yaml:7:5: subset[0]: leaves out the rows of level "south" of site, which categorical.site declares: no row used has it, so its column cannot be estimated; remove the level from categorical.site.levels (rows outside the subset may keep it) or set categorical.site.unobserved: drop` + "\n"}},
