@@ -2,7 +2,6 @@ package render
 
 import (
 	"fmt"
-	"math"
 	"slices"
 	"strconv"
 	"strings"
@@ -77,12 +76,7 @@ func writePairEffects(d *doc, or *runner.OutcomeResult, set runner.LevelPairSet,
 		}
 		row = append(row, numfmt.Est(x.Low), numfmt.Est(x.High))
 		if me.Pooling != nil {
-			pp := me.Pooling[e]
-			df := math.Inf(1)
-			if pp.DF != nil {
-				df = *pp.DF
-			}
-			row = append(row, dfCell(df), numfmt.Fixed(pp.FMI, 3))
+			row = append(row, pooledCells(me.Pooling[e])...)
 		}
 		rows = append(rows, row)
 	}

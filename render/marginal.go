@@ -72,17 +72,22 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			row := []string{me.Predictor, change, me.Category, numfmt.Est(me.Effect), numfmt.Est(me.SE),
 				numfmt.Z(me.Z), numfmt.PValue(me.P), numfmt.Est(me.Low), numfmt.Est(me.High)}
 			if set.Pooling != nil {
-				pp := set.Pooling[e]
-				df := math.Inf(1)
-				if pp.DF != nil {
-					df = *pp.DF
-				}
-				row = append(row, dfCell(df), numfmt.Fixed(pp.FMI, 3))
+				row = append(row, pooledCells(set.Pooling[e])...)
 			}
 			rows = append(rows, row)
 		}
 		d.table(head, rows)
 	}
+}
+
+// pooledCells are the df and FMI cells of an effect pooled over imputed
+// sets.
+func pooledCells(pp runner.PoolingParam) []string {
+	df := math.Inf(1)
+	if pp.DF != nil {
+		df = *pp.DF
+	}
+	return []string{dfCell(df), numfmt.Fixed(pp.FMI, 3)}
 }
 
 // pointList writes the raw row of marginal effects at one point: each
