@@ -28,12 +28,12 @@ func writePredictions(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		d.p("On imputed data the curves and the table below are at the pooled estimates, with delta-method errors from the total (within + between) covariance; to first order this equals pooling the predictions of each set. The predictions for new rows are pooled set by set.")
 	}
 	by := r.Plan.Report.PanelsBy
-	if by == "" || or.Design == nil || or.Design.Source(mdCode(by)) < 0 {
+	if by == "" || or.Design == nil || or.Design.Source(by) < 0 {
 		writePredictionPanel(d, r, or, nil, "")
 		return
 	}
 	levels, _ := or.Design.Coded(or.Design.Source(by))
-	d.p("One panel per level of %s (report.panels_by), so that the predictions can be compared across its levels, as an interaction needs.", by)
+	d.p("One panel per level of %s (report.panels_by), so that the predictions can be compared across its levels, as an interaction needs.", mdCode(by))
 	for _, l := range levels {
 		d.h(4, mdText(fmt.Sprintf("%s = %s", by, l)))
 		writePredictionPanel(d, r, or, map[string]string{by: l}, fmt.Sprintf("%s = %s", by, l))

@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
+	"path/filepath"
 	"regexp"
 	"strings"
 	"testing"
@@ -276,4 +277,30 @@ func TestStackedLegendFollowsLayers(t *testing.T) {
 	if !found {
 		t.Fatal("no stacked chart in the golden report")
 	}
+}
+
+// TestPanelsByGivesOnePanelPerLevel: report.panels_by names a categorical
+// column of the design, and the predictions get one panel (a heading and
+// a table) per level of it, each held at that level; a plan's name is
+// matched as written (a code span is only how the report shows it).
+func TestPanelsByGivesOnePanelPerLevel(t *testing.T) {
+	qs, err := filepath.Abs(filepath.Join("..", "plans", "data", "quietstreets.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	src := `version: 1
+data: {file: ` + qs + `}
+outcomes: [{column: safety, categories: [very_unsafe, unsafe, neutral, safe, very_safe]}]
+categorical:
+  street_type: {levels: [residential, through_road, cul_de_sac]}
+predictors: [pilot, age, street_type]
+models: {approaches: [cumulative], effects: [parallel], links: [logit]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: aic}
+report: {focus_predictor: age, panels_by: street_type}
+`
+	md := string(renderSource(t, t.TempDir(), src, 1)["report.md"])
+	hasAll(t, "report.md", md, "One panel per level of `street_type` (report.panels_by)",
+		"#### street_type = residential", "#### street_type = through_road", "#### street_type = cul_de_sac")
 }
