@@ -1402,6 +1402,10 @@ func commandLineItems(dir string) []badInput {
 					t.Errorf("a plan was written: %v", err)
 				}
 			}},
+		{id: "C7", name: "a confidence level given as a percentage", args: fitArgs(d, "--predictors", "a", "--confidence-level", "90"), code: 2,
+			want: []string{"ordplan fit: --confidence-level must be a number strictly between 0 and 1, not 90 (for 90% intervals give 0.9)"}},
+		{id: "C7", name: "a confidence level of 1", args: fitArgs(d, "--predictors", "a", "--confidence-level", "1"), code: 2,
+			want: []string{"ordplan fit: --confidence-level must be a number strictly between 0 and 1, not 1"}},
 		{id: "C4", name: "help on a topic that does not exist", args: []string{"help", "plans"}, code: 2,
 			want: []string{`ordplan help: no command or topic "plans" (commands: run, check, fit, init, rehearse, power, freeze, worker, schema, version; topic: plan)`}},
 	}

@@ -273,6 +273,15 @@ func (f *fitFlags) usageProblem(fs *flag.FlagSet) string {
 	if _, err := data.ParseDialect(*f.delimiter, *f.decimal); err != nil {
 		return "--delimiter/--decimal: " + err.Error()
 	}
+	if l := *f.level; !(l > 0 && l < 1) {
+		// As the plan's report.confidence_level: a probability, never
+		// replaced by a default the user did not ask for.
+		hint := ""
+		if l > 1 && l < 100 {
+			hint = fmt.Sprintf(" (for %g%% intervals give %g)", l, l/100)
+		}
+		return fmt.Sprintf("--confidence-level must be a number strictly between 0 and 1, not %g%s", l, hint)
+	}
 	if *f.headerRow < 1 {
 		return fmt.Sprintf("--header-row must be a sheet row number, 1 or more (got %d)", *f.headerRow)
 	}
