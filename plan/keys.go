@@ -156,7 +156,7 @@ var Spec = mkey("", "An analysis plan.",
 		k("alpha", KindProbability, "Their level.").dflt("0.05"),
 	),
 	k("rules", KindRules, "The decision rules, applied in order; the last is choose or prefer_simpler.").req().variants(
-		k(RuleRejectUnconverged, KindBoolean, "Reject fits that did not converge or have no finite maximum."),
+		k(RuleRejectUnconverged, KindBoolean, "Reject fits that did not converge, have no finite maximum, or have a finite maximum so flat that some estimates are not determined."),
 		k(RuleRejectNegativeProbabilities, KindBoolean, "Reject cumulative fits that predict a negative probability for a row."),
 		mkey(RuleRejectIfTestRejects, "Reject a model when a test against a less constrained model of its approach and link rejects it. The test named is the test used: a plan whose test is not defined for a comparison the rule makes is refused (brant: cumulative logit, parallel against nonparallel; wald and score: no constrained or stereotype models; with sampling weights: wald only).",
 			k("test", KindWord, "The test.").words(names(ruleTests)).dflt(fit.TestLR.String()),

@@ -58,10 +58,12 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 	if len(r.Centred) > 0 {
 		fmt.Fprintf(tw, "Centred\t%s fitted less the mean inside the fit (far from zero for the spread): estimates, errors and max |score| are in the data's units; the information's condition number (JSON) is that of the centred parameters\n", strings.Join(r.Centred, ", "))
 	}
-	if r.OK() {
+	if r.OK() || r.Status == fit.StatusFlatMaximum {
 		fmt.Fprintf(tw, "Log-likelihood\t%s\n", numfmt.Fixed(r.LogLik, 6))
 		fmt.Fprintf(tw, "Parameters\t%d\n", r.NParams)
 		fmt.Fprintf(tw, "AIC / BIC\t%s / %s\n", numfmt.Fixed(r.AIC, 3), numfmt.Fixed(r.BIC, 3))
+	}
+	if r.OK() {
 		fmt.Fprintf(tw, "Standard errors\t%s\n", r.CovType.Label())
 	}
 	if err := tw.Flush(); err != nil {

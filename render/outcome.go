@@ -232,7 +232,7 @@ func modelRow(f *runner.FitEntry) []string {
 		return []string{id, "not fitted: " + f.Err, "", "", "", "", "", f.Verdict}
 	}
 	res := f.Result
-	if !res.OK() && !(res.Status == fit.StatusNotIdentified && !math.IsNaN(res.LogLik)) {
+	if !res.MaximumKnown() {
 		return []string{id, string(res.Status), "no finite value", fmt.Sprint(res.NParams), "", "", "", f.Verdict}
 	}
 	return []string{id, string(res.Status), numfmt.Fixed(res.LogLik, 3), fmt.Sprint(res.NParams), numfmt.Fixed(res.AIC, 2), numfmt.Fixed(res.BIC, 2), fmt.Sprint(res.NegativeRows), f.Verdict}

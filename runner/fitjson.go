@@ -38,12 +38,15 @@ type FitRecord struct {
 	// Centred: the predictors fitted less their mean inside the fit (far
 	// from zero for their spread); the estimates, errors and max |score|
 	// are in the data's units.
-	Centred     []string        `json:"centred_predictors,omitempty"`
-	SupLogLik   *float64        `json:"loglik_supremum,omitempty"`
-	Separation  *fit.Separation `json:"separation,omitempty"`
-	Starts      []StartJSON     `json:"starts,omitempty"`
-	StartsAgree int             `json:"starts_reaching_best,omitempty"`
-	PhiNotes    []string        `json:"phi_notes,omitempty"`
+	Centred    []string        `json:"centred_predictors,omitempty"`
+	SupLogLik  *float64        `json:"loglik_supremum,omitempty"`
+	Separation *fit.Separation `json:"separation,omitempty"`
+	// Flat: the parameters along which a finite maximum is nearly flat
+	// (status flat_maximum).
+	Flat        *fit.Flatness `json:"flat_maximum,omitempty"`
+	Starts      []StartJSON   `json:"starts,omitempty"`
+	StartsAgree int           `json:"starts_reaching_best,omitempty"`
+	PhiNotes    []string      `json:"phi_notes,omitempty"`
 	// Collinear: the terms whose slopes' variance inflation reaches
 	// fit.InflationLimit (near-collinearity).
 	Collinear []fit.Inflation `json:"collinear,omitempty"`
@@ -79,14 +82,15 @@ func Record(r *fit.Result) FitRecord {
 		Model: r.Name, Approach: r.Model.ComparisonName(), Effects: r.Model.Structure(), Link: r.Model.Link,
 		Status: string(r.Status), Message: r.Message, Converged: r.Converged, Iterations: r.Iterations,
 		MaxAbsScore: num(r.MaxAbsScore), NParams: r.NParams, NObs: r.NObs,
-		NegativeRows: r.NegativeRows, Condition: num(r.Condition), Separation: r.Separation,
+		NegativeRows: r.NegativeRows, Condition: num(r.Condition), Separation: r.Separation, Flat: r.Flat,
 		StartsAgree: r.StartsAgreeing, PhiNotes: r.PhiNotes, Collinear: r.Collinear, Centred: r.Centred,
 	}
 	for _, s := range r.Starts {
 		rec.Starts = append(rec.Starts, StartJSON{Label: s.Label, LogLik: num(s.LogLik), ReachedBest: s.ReachedBest, Iterations: s.Iterations, Reason: s.Reason})
 	}
-	if r.Status == fit.StatusNotIdentified {
-		// The maximum is finite; only phi is not identified.
+	if r.MaximumKnown() {
+		// The maximum is finite (though phi may not be identified, or
+		// some parameters not determined by a flat maximum).
 		rec.LogLik, rec.AIC, rec.BIC = num(r.LogLik), num(r.AIC), num(r.BIC)
 	}
 	if !r.OK() {

@@ -243,7 +243,7 @@ func BinaryWarnings(p *plan.Plan, found []int) []string {
 func (an *Analysis) DescribeRule(r plan.Rule) string {
 	switch r.Kind {
 	case plan.RuleRejectUnconverged:
-		return "Reject fits that did not converge or whose likelihood has no finite maximum."
+		return "Reject fits that did not converge, whose likelihood has no finite maximum, or whose finite maximum is so flat that some estimates are not determined."
 	case plan.RuleRejectNegativeProbabilities:
 		return "Reject fits that predict a negative category probability for some row of the data."
 	case plan.RuleRejectIfTestRejects:

@@ -201,7 +201,11 @@ func noEstimates(stderr io.Writer, res *fit.Result) int {
 	if res.Message != "" {
 		msg += ": " + res.Message
 	}
-	fmt.Fprintf(stderr, "ordplan fit: %s has no estimates (%s)\n", res.Name, msg)
+	what := "no estimates"
+	if res.Status == fit.StatusFlatMaximum {
+		what = "no reliable estimates" // its maximum is finite, but flat
+	}
+	fmt.Fprintf(stderr, "ordplan fit: %s has %s (%s)\n", res.Name, what, msg)
 	return exitFail
 }
 

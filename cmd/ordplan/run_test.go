@@ -128,7 +128,7 @@ func TestCheckListsRules(t *testing.T) {
 	}
 	for _, w := range []string{
 		"The rules, in the order they will be applied to the models of each outcome:",
-		") Reject fits that did not converge or whose likelihood has no finite maximum.",
+		") Reject fits that did not converge, whose likelihood has no finite maximum, or whose finite maximum is so flat that some estimates are not determined.",
 		"Reject a model when the likelihood-ratio test against the least constrained model of its approach and link rejects it at alpha = 0.05.",
 		"Comparisons:\n     cumulative/parallel/logit against cumulative/nonparallel/logit\n",
 		"     adjacent/stereotype/logit against adjacent/nonparallel/logit\n",

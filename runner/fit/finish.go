@@ -106,13 +106,18 @@ func finish(src *source, m Model, ly *layout, st newtonState, opt Options) (*Res
 	}
 	// Phase 2: is the maximum finite, and was it reached?
 	info := negated(st.hess)
-	singular, dir := src.certify(r, ly, st, info)
+	v, dir := src.certify(r, ly, st, info)
 	switch {
-	case singular:
+	case v == verdictSeparated || v == verdictDiverging:
 		r.Separation = src.describeSeparation(ly, dir)
+		r.Separation.Proved = v == verdictSeparated
 		return r.fail(StatusNoFiniteMaximum, separationMessage(r, st)), nil
 	case !st.converged:
-		return r.fail(StatusNotConverged, fmt.Sprintf("Newton-Raphson stopped after %d iterations: %s (max |score| %.3g)", st.iters, st.reason, r.MaxAbsScore)), nil
+		msg := fmt.Sprintf("Newton-Raphson stopped after %d iterations: %s (max |score| %.3g)", st.iters, st.reason, r.MaxAbsScore)
+		if v == verdictFlat {
+			msg += "; " + finiteMaximumReason
+		}
+		return r.fail(StatusNotConverged, msg), nil
 	}
 	// Phase 3: criteria, covariance and standard errors.
 	r.Status = StatusOK
@@ -130,12 +135,64 @@ func finish(src *source, m Model, ly *layout, st newtonState, opt Options) (*Res
 		info = negated(src.expected(st.theta))
 	}
 	cov, err := invertSym(info, r.NParams)
-	if err != nil {
+	switch {
+	case v == verdictFlat:
+		if err == nil {
+			r.setCovariance(cov, nil, r.CovType)
+		}
+		r.settleFlat(src.flatness(ly, dir))
+	case err != nil:
 		return r.fail(StatusNoFiniteMaximum, "the information matrix cannot be inverted at the maximum: parameters are not identified"), nil
+	default:
+		r.setCovariance(cov, nil, r.CovType)
 	}
-	r.setCovariance(cov, nil, r.CovType)
 	return r, nil
 }
+
+// finiteMaximumReason says why a maximum is known to be finite although
+// the log-likelihood looked as if it kept rising.
+const finiteMaximumReason = "the maximum likelihood estimate is finite: the log-likelihood is concave and the data admit no direction along which it keeps rising (a linear programme over the distinct rows finds none)"
+
+// flatness names the parameters, predictors and category boundaries
+// along the direction vec (scaled coordinates) in which a finite maximum
+// is nearly flat.
+func (src *source) flatness(ly *layout, vec []float64) *Flatness {
+	f := &Flatness{}
+	if vec != nil {
+		var s Separation
+		s.nameDirection(ly, vec, src.predictors, src.categories)
+		f.Parameters, f.Predictors, f.Boundaries = s.Parameters, s.Predictors, s.Boundaries
+	}
+	return f
+}
+
+// settleFlat turns r, a converged fit whose maximum is proved finite
+// though the checks saw the log-likelihood hold along the direction f
+// describes, into a StatusFlatMaximum result: the log-likelihood and
+// the criteria stand (the maximum), the estimates and errors of the
+// parameters named are not to be relied on.
+func (r *Result) settleFlat(f *Flatness) {
+	r.Status, r.Flat = StatusFlatMaximum, f
+	var b strings.Builder
+	b.WriteString(finiteMaximumReason)
+	b.WriteString(", but it is nearly flat: the log-likelihood barely changes far along a direction of the parameters")
+	if len(f.Parameters) > 0 {
+		fmt.Fprintf(&b, " (%s)", strings.Join(f.Parameters, ", "))
+	}
+	b.WriteString(", so their estimates and standard errors are unreliable and their Wald tests and intervals meaningless")
+	if len(f.Predictors) > 0 {
+		fmt.Fprintf(&b, "; predictors involved: %s", strings.Join(f.Predictors, ", "))
+	}
+	if len(f.Boundaries) > 0 {
+		fmt.Fprintf(&b, "; category boundaries: %s", strings.Join(f.Boundaries, ", "))
+	}
+	fmt.Fprintf(&b, "; the log-likelihood %.6f is the maximum [information condition %.2g]", r.LogLik, r.Condition)
+	if r.NegativeRows > 0 {
+		fmt.Fprintf(&b, "; %d of %d rows have a negative predicted category probability", r.NegativeRows, r.NRows)
+	}
+	r.Message = b.String()
+}
+
 
 // newResult is the result of model m at the Newton state, before any
 // verdict: the estimates, their names and the score summary.
@@ -230,20 +287,72 @@ func negated(A []float64) []float64 {
 	return out
 }
 
-// certify sets r.Condition and reports whether the information at the end
-// of the iterations is singular, or the log-likelihood keeps rising along
-// some direction (separation), with that direction in scaled coordinates.
-func (src *source) certify(r *Result, ly *layout, st newtonState, info []float64) (bool, []float64) {
+// verdict is what certify concludes of the point the iterations reached.
+type verdict int
+
+const (
+	// verdictFinite: no sign of divergence (a finite maximum, as far as
+	// the checks go).
+	verdictFinite verdict = iota
+	// verdictSeparated: the programme found a direction of recession
+	// along which the log-likelihood does not fall: it keeps rising as
+	// the parameters diverge (proved, for every model).
+	verdictSeparated
+	// verdictDiverging: the information is singular, or the
+	// log-likelihood does not fall along a ray the checks tried, and
+	// nothing proves either way whether the maximum is finite (the
+	// programme does not decide for this model, could not run, or found
+	// no direction along which the log-likelihood holds).
+	verdictDiverging
+	// verdictFlat: the checks saw the signs of divergence, but the
+	// programme proves the maximum finite (programmeDecides): the
+	// log-likelihood is merely nearly flat along the direction found.
+	verdictFlat
+)
+
+// certify sets r.Condition and says whether the log-likelihood has a
+// finite maximum at the end of the iterations: first the signs of
+// divergence (divergenceSigns), then the data's own answer, a direction
+// of recession found by a linear programme over the rows (on every small
+// fit, and on larger ones whose estimates or errors look diverging or
+// that showed a sign). It returns the verdict and the direction behind
+// it (scaled coordinates): the sign's, or the programme's when it alone
+// found one.
+func (src *source) certify(r *Result, ly *layout, st newtonState, info []float64) (verdict, []float64) {
+	flagged, dir, suspect := src.divergenceSigns(r, ly, st, info)
+	found, v := src.recessionDirection(r, ly, st.theta, st.ll, info, suspect || flagged)
+	switch {
+	case found == recessionFound && flagged:
+		return verdictSeparated, dir
+	case found == recessionFound:
+		return verdictSeparated, v
+	case !flagged:
+		return verdictFinite, dir
+	case found == recessionNone && programmeDecides(r.Model):
+		return verdictFlat, dir
+	}
+	return verdictDiverging, dir
+}
+
+// divergenceSigns looks for the signs that the log-likelihood keeps
+// rising as parameters diverge: an information singular at the end of
+// the iterations (or of condition above conditionLimit), and rays along
+// which the log-likelihood does not fall. It returns whether it saw one
+// and the direction (scaled coordinates; the weakest direction of the
+// information when it saw none), and whether the estimates or errors
+// look diverging (suspect). A sign is no proof: a finite maximum far out
+// in a link's tail is numerically flat too (certify asks the programme).
+func (src *source) divergenceSigns(r *Result, ly *layout, st newtonState, info []float64) (bool, []float64, bool) {
 	cond, minVec, pd := scaledCondition(info, r.NParams)
 	r.Condition = cond
 	if !pd || cond > conditionLimit {
-		return true, minVec
+		return true, minVec, true
 	}
 	if cond > 1e5 && rayRises(src.loglik, st.theta, st.ll, minVec, info) {
-		return true, minVec
+		return true, minVec, true
 	}
 	if src.sd == nil {
-		return false, minVec
+		return false, minVec, false
 	}
 	large := suspectDivergence(ly, st.theta, src.sd)
 	if large != nil {
@@ -253,27 +362,21 @@ func (src *source) certify(r *Result, ly *layout, st newtonState, info []float64
 		// parameter's axis, the estimates themselves, and the large
 		// estimates alone.
 		if v := risingDirection(src.loglik, st.theta, st.ll, minVec, info, large); v != nil {
-			return true, v
+			return true, v, true
 		}
 	}
 	// The two ridge checks read the covariance of the parameters.
 	suspect := large != nil
 	if cov, err := invertSym(info, len(st.theta)); err == nil {
 		if v := flatDirection(src.loglik, ly, st.theta, st.ll, info, cov, src.sd); v != nil {
-			return true, v
+			return true, v, true
 		}
 		if v := explodingDirection(src.loglik, ly, st.theta, st.ll, info, cov, src.sd); v != nil {
-			return true, v
+			return true, v, true
 		}
 		suspect = suspect || wideErrors(ly, st.theta, cov, src.sd)
 	}
-	// The data's own answer: a direction of recession found by a linear
-	// programme over the rows (on every small fit, and on larger ones
-	// whose estimates or errors look diverging).
-	if v := src.recessionDirection(r, ly, st.theta, st.ll, info, suspect); v != nil {
-		return true, v
-	}
-	return false, minVec
+	return false, minVec, suspect
 }
 
 // fillEstimates sets the score summary, cutpoints, effects matrix and
@@ -1066,8 +1169,15 @@ func appendUnique(xs []string, x string) []string {
 
 func separationMessage(r *Result, st newtonState) string {
 	var b strings.Builder
-	b.WriteString("no finite maximum likelihood estimate: the log-likelihood keeps rising as parameters diverge (separation)")
 	s := r.Separation
+	switch {
+	case s != nil && s.Proved:
+		b.WriteString("no finite maximum likelihood estimate: the log-likelihood keeps rising as parameters diverge (separation)")
+	case !(r.Condition <= conditionLimit):
+		b.WriteString("no finite maximum likelihood estimate found: the information is singular where the iterations stopped, as when parameters diverge (separation); whether the log-likelihood keeps rising is not proved for this fit")
+	default:
+		b.WriteString("no finite maximum likelihood estimate found: the log-likelihood does not fall far along a direction in which parameters grow, as under separation; that it keeps rising is not proved for this fit")
+	}
 	if s != nil && len(s.Predictors) > 0 {
 		fmt.Fprintf(&b, "; predictors involved: %s", strings.Join(s.Predictors, ", "))
 	}
@@ -1078,7 +1188,11 @@ func separationMessage(r *Result, st newtonState) string {
 		fmt.Fprintf(&b, "; %s", strings.Join(s.Evidence, "; "))
 	}
 	if s != nil && len(s.Parameters) > 0 {
-		fmt.Fprintf(&b, " (diverging: %s)", strings.Join(s.Parameters, ", "))
+		what := "along that direction"
+		if s.Proved {
+			what = "diverging"
+		}
+		fmt.Fprintf(&b, " (%s: %s)", what, strings.Join(s.Parameters, ", "))
 	}
 	fmt.Fprintf(&b, " [log-likelihood approaches %.6f; information condition %.2g]", st.ll, r.Condition)
 	return b.String()

@@ -134,6 +134,13 @@ const (
 	StatusNegativeProbs   Status = "ok_negative_probabilities"
 	StatusNoFiniteMaximum Status = "no_finite_maximum"
 	StatusNotConverged    Status = "not_converged"
+	// StatusFlatMaximum: the log-likelihood's maximum is proved finite
+	// and was reached (the log-likelihood and criteria are kept), but it
+	// is nearly flat along some direction of the parameters (Flat names
+	// them), so their estimates and standard errors are unreliable: a
+	// fit with no usable estimates (not OK), as a model too rich for the
+	// data.
+	StatusFlatMaximum Status = "flat_maximum"
 )
 
 // Result is a frozen fit.
@@ -189,6 +196,7 @@ type Result struct {
 	MinFittedProb float64 // smallest fitted probability of an observed category
 	NegativeRows  int     // rows with a negative predicted category probability
 	Separation    *Separation
+	Flat          *Flatness // the parameters of a flat maximum (StatusFlatMaximum)
 	SupLogLik     float64 // log-likelihood reached when there is no finite maximum
 	// Collinear: the terms whose slopes' variance inflation is at least
 	// InflationLimit (CheckCollinearity; nil when none or not checked).
@@ -225,6 +233,20 @@ type Separation struct {
 	Predictors []string `json:"predictors"`
 	Boundaries []string `json:"boundaries"` // "lower/upper" category boundaries involved
 	Evidence   []string `json:"evidence"`   // data facts such as `category "1" occurs only at temp = 0`
+	// Proved: a direction of recession was found in the data (the
+	// log-likelihood keeps rising along it); false when only the signs
+	// were seen (a singular information, a ray along which the
+	// log-likelihood held) and nothing proves whether the maximum is finite.
+	Proved bool `json:"proved"`
+}
+
+// Flatness describes a finite maximum that is nearly flat
+// (StatusFlatMaximum): the parameters carrying the direction along which
+// the log-likelihood barely changes, their predictors and boundaries.
+type Flatness struct {
+	Parameters []string `json:"parameters"`
+	Predictors []string `json:"predictors"`
+	Boundaries []string `json:"boundaries"`
 }
 
 // Estimate returns the estimate named name.
@@ -235,6 +257,14 @@ func (r *Result) Estimate(name string) (float64, bool) {
 		}
 	}
 	return 0, false
+}
+
+// MaximumKnown reports whether LogLik is the maximum of the
+// log-likelihood: a usable fit (OK), or one whose maximum is finite and
+// reached though some parameters are not determined by it
+// (StatusNotIdentified, StatusFlatMaximum).
+func (r *Result) MaximumKnown() bool {
+	return r.OK() || ((r.Status == StatusNotIdentified || r.Status == StatusFlatMaximum) && !math.IsNaN(r.LogLik))
 }
 
 // OK reports whether the fit has a finite maximum and converged.

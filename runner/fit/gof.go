@@ -203,11 +203,17 @@ func refitFailed(G int, err error) Test {
 // refitFailure says why the refit full with score-group indicators has no
 // usable maximum, naming what diverges.
 func refitFailure(full *Result) string {
-	if full.Status != StatusNoFiniteMaximum {
+	s := full.Separation
+	switch {
+	case full.Status == StatusFlatMaximum:
+		return fmt.Sprintf("has a finite but nearly flat maximum, some of its estimates not determined (%s)", full.Message)
+	case full.Status != StatusNoFiniteMaximum:
 		return fmt.Sprintf("did not converge (%s)", full.Message)
+	case s != nil && !s.Proved:
+		return fmt.Sprintf("has no finite maximum found (%s), so the likelihood ratio has no finite value", full.Message)
 	}
 	why := "the log-likelihood keeps rising as parameters diverge"
-	if s := full.Separation; s != nil && len(s.Parameters) > 0 {
+	if s != nil && len(s.Parameters) > 0 {
 		why = fmt.Sprintf("the log-likelihood keeps rising as %s diverge", strings.Join(s.Parameters, ", "))
 	}
 	return "has no finite maximum (separation: " + why + ", as when an outcome category is missing from some of the groups), so the likelihood ratio has no finite value"

@@ -48,6 +48,36 @@ const (
 	lpMemory   = 4e6
 )
 
+// programmeDecides reports whether the programme's finding no direction
+// proves the maximum finite for model m: its log-likelihood is concave in
+// parameters that enter the linear predictors linearly, and the
+// inequalities are then exactly its directions of recession, so with none
+// its level sets are bounded and the maximum is attained. That holds for
+// the cumulative comparison with a link of log-concave density, log(F(L_c)
+// - F(L_{c-1})) being concave where positive (logit, probit, cloglog,
+// loglog); for the stage comparisons with a link whose F and 1 - F are
+// both log-concave (the same four; each stage is a binary fit); and for
+// the adjacent comparison with the logit link (a multinomial logit with
+// linear constraints). It does not hold for the Cauchy link (neither F
+// nor its density is log-concave), for the adjacent comparison with
+// another link (its conditions are sufficient for a direction, not
+// necessary), nor for constrained effects (phi_m g_k is not linear, and
+// only rays with phi or g held are tried).
+func programmeDecides(m Model) bool {
+	for _, e := range m.Effects {
+		if e == Constrained {
+			return false
+		}
+	}
+	switch {
+	case m.Link == Cauchy:
+		return false
+	case m.Comparison == Adjacent:
+		return m.Link == Logit
+	}
+	return true
+}
+
 // groupMove says how a constraint group's effects move along a ray (a
 // group of one predictor moves its J-1 slopes freely either way).
 type groupMove int
@@ -64,16 +94,34 @@ type lpVariable struct {
 	w   []float64
 }
 
+// recessionVerdict is what the programme says of the data.
+type recessionVerdict int
+
+const (
+	// recessionUnknown: the programme did not run (no rows at hand, too
+	// many distinct rows for its size) or did not settle, or the
+	// log-likelihood fell along the direction it found.
+	recessionUnknown recessionVerdict = iota
+	// recessionNone: the programme settled with no direction for every
+	// way the constraint groups may move (a finite maximum, for the
+	// models where programmeDecides).
+	recessionNone
+	// recessionFound: a direction of recession, along which the
+	// log-likelihood was seen not to fall (separation).
+	recessionFound
+)
+
 // recessionDirection looks for a direction of recession of the model at
 // the estimates theta: the programme over the data's distinct rows for
 // each way the constraint groups may move, and the ray it finds checked
 // on the log-likelihood (which must not fall along it). suspect says the
 // estimates or errors look diverging (a larger programme is then worth
-// its cost). It returns the direction in scaled coordinates, or nil.
-func (src *source) recessionDirection(r *Result, ly *layout, theta []float64, ll float64, info []float64, suspect bool) []float64 {
+// its cost). It returns the verdict and, when one is found, the direction
+// in scaled coordinates.
+func (src *source) recessionDirection(r *Result, ly *layout, theta []float64, ll float64, info []float64, suspect bool) (recessionVerdict, []float64) {
 	d := src.rows
 	if d == nil || len(ly.params) != len(theta) || d.J < 2 {
-		return nil
+		return recessionUnknown, nil
 	}
 	V := float64(len(theta))
 	perRow := float64(d.J - 1) // inequalities per row (at most)
@@ -81,7 +129,7 @@ func (src *source) recessionDirection(r *Result, ly *layout, theta []float64, ll
 		perRow = math.Min(perRow, 2)
 	}
 	if !suspect && float64(d.N())*perRow*V*V > 50*lpEveryFit {
-		return nil // not even the distinct rows are worth finding
+		return recessionUnknown, nil // not even the distinct rows are worth finding
 	}
 	// The most distinct rows the programme may take: beyond them, nothing
 	// is worth finding (every row of a million with continuous predictors
@@ -92,7 +140,7 @@ func (src *source) recessionDirection(r *Result, ly *layout, theta []float64, ll
 	}
 	rows := distinctRows(d, int(most))
 	if rows == nil {
-		return nil
+		return recessionUnknown, nil
 	}
 	moves := []groupMove{phiHeld}
 	for _, ks := range ly.groups {
@@ -101,17 +149,22 @@ func (src *source) recessionDirection(r *Result, ly *layout, theta []float64, ll
 			break
 		}
 	}
+	verdict := recessionNone
 	for _, mv := range moves {
 		vars := lpVariables(ly, theta, r.Model, mv)
-		dir := recessionLP(recessionRows(d, rows, r.Model, ly, vars))
+		dir, settled := recessionSolve(recessionRows(d, rows, r.Model, ly, vars))
 		if dir == nil {
+			if !settled {
+				verdict = recessionUnknown
+			}
 			continue
 		}
 		if v := src.followRecession(ly, theta, ll, info, vars, dir, mv); v != nil {
-			return v
+			return recessionFound, v
 		}
+		verdict = recessionUnknown
 	}
-	return nil
+	return verdict, nil
 }
 
 // distinctRows returns one row index for each distinct pair of category
@@ -328,7 +381,16 @@ func recessionRange(m Model, c, q int) (lo, hi int) {
 
 // recessionLP returns a direction d (in the variables' own units) with
 // M d >= 0 and M d != 0, or nil when none exists (or the programme did
-// not settle). The rows of M are in the variables' scaled units; M.scale
+// not settle: recessionSolve tells the two apart).
+func recessionLP(M *lpRows) []float64 {
+	d, _ := recessionSolve(M)
+	return d
+}
+
+// recessionSolve is recessionLP; settled is false when the programme
+// could not decide (the iterations ran out, the basis became singular, or
+// the direction read from it fails the inequalities), true when d is a
+// direction or none exists. The rows of M are in the variables' scaled units; M.scale
 // holds the scales (recessionRows).
 //
 // Written here rather than through gonum's optimize/convex/lp: its
@@ -346,10 +408,10 @@ func recessionRange(m Model, c, q int) (lo, hi int) {
 // direction), positive otherwise. Its dual is: maximize 1'M d subject to
 // M d >= 0 and |d_j| <= 1, whose solution d is read from the final basis
 // (d = -lambda, the multipliers of the equality constraints).
-func recessionLP(M *lpRows) []float64 {
+func recessionSolve(M *lpRows) ([]float64, bool) {
 	R, V := M.R, M.V
 	if R == 0 || V == 0 {
-		return nil
+		return nil, true
 	}
 	// Columns: y_0..y_{R-1}, a_0..a_{V-1}, b_0..b_{V-1}.
 	N := R + 2*V
@@ -399,7 +461,7 @@ func recessionLP(M *lpRows) []float64 {
 	degenerate := 0
 	for iter := 0; ; iter++ {
 		if iter > 20*(V+10) {
-			return nil
+			return nil, false
 		}
 		// Multipliers lambda' = c_B' B^-1.
 		clear(lambda)
@@ -458,7 +520,7 @@ func recessionLP(M *lpRows) []float64 {
 			}
 		}
 		if leave < 0 {
-			return nil // unbounded: cannot happen for a norm
+			return nil, false // unbounded: cannot happen for a norm
 		}
 		if ratio <= tol {
 			degenerate++
@@ -484,7 +546,7 @@ func recessionLP(M *lpRows) []float64 {
 		inBasis[basis[leave]] = false
 		basis[leave], inBasis[enter] = enter, true
 		if iter%64 == 63 && !refactor(basis, col, Binv, xb, rhs) {
-			return nil
+			return nil, false
 		}
 	}
 	obj := 0.0
@@ -492,7 +554,7 @@ func recessionLP(M *lpRows) []float64 {
 		obj += cost(k) * xb[r]
 	}
 	if obj <= 1e-7 {
-		return nil
+		return nil, true
 	}
 	// d = -lambda; it must meet the inequalities, some strictly.
 	d := make([]float64, V)
@@ -506,17 +568,17 @@ func recessionLP(M *lpRows) []float64 {
 			s += m * d[v]
 		}
 		if s < -1e-7 {
-			return nil
+			return nil, false
 		}
 		most = math.Max(most, s)
 	}
 	if most < 1e-6 {
-		return nil
+		return nil, false
 	}
 	for v := range d {
 		d[v] /= M.scale[v]
 	}
-	return d
+	return d, true
 }
 
 // refactor recomputes the basis inverse and the basic values from the

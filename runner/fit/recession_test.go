@@ -175,7 +175,10 @@ func TestSeparationEvidenceSparseLevel(t *testing.T) {
 // TestProgrammeAgainstLPSolve's study as binary glm designs on the
 // expanded rows (parallel, b nonparallel, all nonparallel), and the
 // adjacent logit of seed51 with b free across equations from its
-// probabilities' partial sums. Skipped without R or lpSolve (Debian:
+// probabilities' partial sums; and the flat maxima of
+// TestFlatMaximumIsFinite (the stage probit as a glm design, the
+// cumulative probit from its inequalities), whose stage log-likelihood R's
+// glm reaches too. Skipped without R or lpSolve (Debian:
 // r-cran-lpsolve).
 func TestRecessionAgainstLPSolve(t *testing.T) {
 	rscript.Require(t)
@@ -198,6 +201,15 @@ func TestRecessionAgainstLPSolve(t *testing.T) {
 		}
 		rscript.WriteCSV(t, filepath.Join(dir, name), []string{"y", "x", "b", "gv", "gw", "w"}, cols)
 	}
+	flat := tinyStudy(42)
+	cols := make([][]float64, 4)
+	for i, y := range flat.Y {
+		cols[0] = append(cols[0], float64(y+1))
+		for k := 0; k < 3; k++ {
+			cols[k+1] = append(cols[k+1], flat.at(i, k))
+		}
+	}
+	rscript.WriteCSV(t, filepath.Join(dir, "flat.csv"), []string{"y", "x1", "x2", "x3"}, cols)
 	vals := rscript.Run(t, dir, filepath.Join("testdata", "rcheck", "recession.R"))
 	for _, c := range []struct {
 		name string
@@ -208,6 +220,8 @@ func TestRecessionAgainstLPSolve(t *testing.T) {
 		{"stage_b_nonparallel", stage, Model{Comparison: Stage, Link: Logit, Effects: []Effect{Parallel, Nonparallel, Parallel, Parallel}}},
 		{"stage_nonparallel", stage, Model{Comparison: Stage, Link: Logit, Effects: allEffects(4, Nonparallel)}},
 		{"adjacent_b_nonparallel", adj, Model{Comparison: Adjacent, Link: Logit, Effects: []Effect{Parallel, Nonparallel, Parallel, Parallel}}},
+		{"flat_stage_nonparallel", flat, Model{Comparison: Stage, Link: Probit, Effects: allEffects(3, Nonparallel)}},
+		{"flat_cumulative_nonparallel", flat, Model{Comparison: Cumulative, Link: Probit, Effects: allEffects(3, Nonparallel)}},
 	} {
 		ly, err := newLayout(c.m, c.d.J, c.d.Predictors)
 		if err != nil {
@@ -220,5 +234,14 @@ func TestRecessionAgainstLPSolve(t *testing.T) {
 			t.Errorf("%s: direction found %v; R lpSolve's value %g", c.m.Name(), found, value)
 		}
 		t.Logf("%s: R lpSolve value %g, direction found %v", c.name, value, found)
+	}
+	// The flat maximum of the stage probit is the maximum R's glm reaches
+	// on the expanded rows.
+	r, err := Fit(flat, Model{Comparison: Stage, Link: Probit, Effects: allEffects(3, Nonparallel)}, Options{Workers: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if want := vals.Scalar(t, "flat_stage_loglik"); r.Status != StatusFlatMaximum || math.Abs(r.LogLik-want) > 1e-6 {
+		t.Errorf("stage nonparallel probit of tinyStudy(42): status %s, log-likelihood %.9f; R glm %.9f", r.Status, r.LogLik, want)
 	}
 }

@@ -37,7 +37,7 @@ func (r *Result) CheckShape(m Model, predictors []string) error {
 	}
 	P, q := len(ly.params), r.J-1
 	switch r.Status {
-	case StatusOK, StatusNegativeProbs, StatusNoFiniteMaximum, StatusNotConverged, StatusNotIdentified:
+	case StatusOK, StatusNegativeProbs, StatusNoFiniteMaximum, StatusNotConverged, StatusNotIdentified, StatusFlatMaximum:
 	default:
 		return fmt.Errorf("unknown status %q", r.Status)
 	}

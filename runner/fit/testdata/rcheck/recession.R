@@ -43,3 +43,28 @@ for (i in seq_len(nrow(a))) {
   }
 }
 cat("adjacent_b_nonparallel", sprintf("%.10g", recession(A)), "\n")
+# The tiny study of TestFlatMaximumIsFinite (flat.csv: y in 1..4, x1, x2,
+# x3; tinyStudy(42) in the Go tests), whose nonparallel probit fits were
+# once reported as separated. The stage model as a binary probit glm on
+# the expanded rows (its log-likelihood the stage model's), and the
+# programme's value for the stage design and for the cumulative
+# comparison's inequalities (a row of category c: dL_c >= 0 for c <= q,
+# -dL_{c-1} >= 0 for c >= 2; L_m = tau_m - x'b_m, every slope by equation).
+f <- read.csv("flat.csv"); q <- max(f$y) - 1
+e <- do.call(rbind, lapply(seq_len(nrow(f)), function(i) {
+  r <- f[i, ]; ms <- seq_len(min(r$y, q))
+  data.frame(eq = factor(ms, levels = seq_len(q)), resp = as.integer(ms == r$y), x1 = r$x1, x2 = r$x2, x3 = r$x3)
+}))
+X <- model.matrix(~ 0 + eq + x1:eq + x2:eq + x3:eq, e)
+g <- suppressWarnings(glm(resp ~ 0 + X, family = binomial("probit"), data = e,
+                          control = glm.control(epsilon = 1e-14, maxit = 100)))
+cat("flat_stage_loglik", sprintf("%.17g", as.numeric(logLik(g))), "\n")
+cat("flat_stage_nonparallel", sprintf("%.10g", recession((2 * e$resp - 1) * X)), "\n")
+A <- NULL
+for (i in seq_len(nrow(f))) {
+  c <- f$y[i]; x <- c(f$x1[i], f$x2[i], f$x3[i])
+  dL <- function(m) { v <- numeric(4 * q); v[m] <- 1; v[q + (0:2) * q + m] <- -x; v }
+  if (c <= q) A <- rbind(A, dL(c))
+  if (c >= 2) A <- rbind(A, -dL(c - 1))
+}
+cat("flat_cumulative_nonparallel", sprintf("%.10g", recession(A)), "\n")
