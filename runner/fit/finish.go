@@ -193,7 +193,6 @@ func (r *Result) settleFlat(f *Flatness) {
 	r.Message = b.String()
 }
 
-
 // newResult is the result of model m at the Newton state, before any
 // verdict: the estimates, their names and the score summary.
 func (src *source) newResult(m Model, ly *layout, st newtonState) *Result {

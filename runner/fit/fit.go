@@ -197,7 +197,7 @@ type Result struct {
 	NegativeRows  int     // rows with a negative predicted category probability
 	Separation    *Separation
 	Flat          *Flatness // the parameters of a flat maximum (StatusFlatMaximum)
-	SupLogLik     float64 // log-likelihood reached when there is no finite maximum
+	SupLogLik     float64   // log-likelihood reached when there is no finite maximum
 	// Collinear: the terms whose slopes' variance inflation is at least
 	// InflationLimit (CheckCollinearity; nil when none or not checked).
 	Collinear []Inflation
