@@ -23,7 +23,7 @@ func criteriaChart(d *doc, or *runner.OutcomeResult, sampling bool) *chart {
 		if f.Auxiliary {
 			continue
 		}
-		if !f.OK() {
+		if f.Result == nil || !f.Result.LikelihoodUsable() {
 			missing = append(missing, f.ID)
 			continue
 		}

@@ -408,7 +408,7 @@ func (env *ruleEnv) judgeTest(r plan.Rule, f *FitEntry) (bool, string) {
 		// The score and Brant tests need only the tested model's fit (and
 		// the other model's structure): they are made although the less
 		// constrained model has no usable fit.
-		if full == nil || !full.OK() && r.Test.NeedsFullFit() {
+		if full == nil || !full.likelihoodUsable() && r.Test.NeedsFullFit() {
 			parts = append(parts, fmt.Sprintf("not tested against %s: it has no usable fit (%s)", full.idOr(fit.ModelID(f.Result.Model.ComparisonName(), t.String(), f.Link)), full.unusable()))
 			continue
 		}
@@ -433,10 +433,13 @@ func (env *ruleEnv) judgeTest(r plan.Rule, f *FitEntry) (bool, string) {
 		env.num("alpha", r.Alpha)
 		cmp, below := belowLimit(tt.P, r.Alpha, "alpha")
 		rejected = rejected || below
-		if !full.OK() {
+		switch {
+		case full.Result != nil && full.Result.Status == fit.StatusFlatMaximum:
+			cmp += fmt.Sprintf(" (%s has a finite but flat maximum: some of its estimates are not determined, its log-likelihood is)", full.ID)
+		case !full.OK():
 			cmp += fmt.Sprintf(" (%s itself has no usable fit, %s; the %s test does not need it)", full.ID, full.unusable(), r.Test.Title())
-		} else if by := env.rejectedBy[full]; by != "" {
-			cmp += fmt.Sprintf(" (%s was itself rejected by %s; the test uses its fit all the same)", full.ID, by)
+		case env.rejectedBy[full] != "":
+			cmp += fmt.Sprintf(" (%s was itself rejected by %s; the test uses its fit all the same)", full.ID, env.rejectedBy[full])
 		}
 		parts = append(parts, s+cmp)
 	}

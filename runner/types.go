@@ -133,6 +133,12 @@ type FitEntry struct {
 // OK reports whether the fit has usable estimates.
 func (f *FitEntry) OK() bool { return f != nil && f.Result != nil && f.Result.OK() }
 
+// likelihoodUsable: the entry's log-likelihood can enter criteria and
+// likelihood ratios (fit.Result.LikelihoodUsable).
+func (f *FitEntry) likelihoodUsable() bool {
+	return f != nil && f.Result != nil && f.Result.LikelihoodUsable()
+}
+
 // TestBlock holds the parallel-lines tests and nested likelihood-ratio
 // tests of one approach and link.
 type TestBlock struct {

@@ -149,6 +149,11 @@ func catalogueData(t *testing.T, dir string) {
 		// equations' effects of b shows (M20).
 		"sep51.csv": "y,x,b,gv,gw,w\n3,0.08,1,1,0,2\n3,3.18,1,0,1,2\n1,1.02,0,0,0,2\n2,-0.02,0,1,0,1\n1,-0.48,1,0,1,1\n3,0.69,1,0,0,1\n" +
 			"3,1.86,0,0,0,2\n2,-0.16,0,0,1,2\n3,2.35,1,0,0,3\n1,-1.46,0,0,1,2\n1,-1.21,1,0,1,2\n",
+		// tinyStudy(42) of runner/fit (values to two decimals): the
+		// nonparallel probit fits have a finite but flat maximum (M21).
+		"flat22.csv": "y,x1,x2,x3\n4,-1.80,0.15,1\n3,0.98,1.04,0\n1,0.22,1.00,0\n3,0.06,-1.39,0\n4,-0.41,-1.06,0\n1,-2.00,0.22,0\n2,0.28,1.02,0\n" +
+			"4,-0.03,-1.28,0\n4,-0.08,-0.94,1\n1,1.12,2.03,0\n2,1.66,0.08,0\n4,-1.95,-0.37,1\n1,0.21,0.44,0\n1,1.72,0.76,1\n3,1.37,-0.82,0\n" +
+			"2,0.06,0.52,0\n3,0.29,0.39,1\n2,0.28,0.69,1\n1,-0.48,0.59,0\n3,-1.30,0.04,0\n2,-0.50,-0.13,0\n3,-0.90,0.74,0\n",
 		"empty.csv":     "",
 		"header.csv":    "y,a,b\n",
 		"latin1.csv":    "y,a,b,caf\xe9\n1,0.5,1,2\n",
@@ -951,6 +956,14 @@ func catalogue(dir string) (items []badInput) {
 			known: separationMissed},
 		{id: "M20", name: "separation only a combination of equations shows (adjacent logit, b constrained)", args: fitArgs(d("sep51.csv"), "--predictors", "x,b,gv,gw", "--constrained", "b", "--approach", "adjacent", "--weights", "w"), code: 1,
 			want: []string{"no finite maximum likelihood estimate", "predictors involved: b", `category "2" occurs only at b = 0`}},
+		{id: "M21", name: "a finite but flat maximum (tiny study, nonparallel probit)", args: fitArgs(d("flat22.csv"), "--predictors", "x1,x2,x3", "--all-nonparallel", "--link", "probit", "--approach", "stage"), code: 1,
+			want: []string{"flat_maximum", "the log-likelihood -18.399054 is the maximum", "the maximum likelihood estimate is finite", "nearly flat", "(x3[3])", "category boundaries: 3/4",
+				"ordplan fit: stage/nonparallel/probit has no reliable estimates (flat_maximum: "},
+			check: func(t *testing.T, dir, out, errs string) {
+				if strings.Contains(out+errs, "keeps rising as") || strings.Contains(out+errs, "no finite maximum") {
+					t.Errorf("a finite maximum is said to have none:\n%s", out)
+				}
+			}},
 		{id: "M7", name: "more parameters than observations", args: fitArgs(d("three.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`three.csv: model cumulative/parallel/logit has 4 parameters but only 3 observations`}},
 		{id: "M8", name: "predictor in huge units (1e8)", args: fitArgs(d("d.csv"), "--predictors", "big,b", "--json"), code: 0,

@@ -267,6 +267,14 @@ func (r *Result) MaximumKnown() bool {
 	return r.OK() || ((r.Status == StatusNotIdentified || r.Status == StatusFlatMaximum) && !math.IsNaN(r.LogLik))
 }
 
+// LikelihoodUsable reports whether the fit's log-likelihood can enter
+// criteria and likelihood ratios: a usable fit (OK), or a flat maximum
+// (StatusFlatMaximum: the maximum is finite and reached, only some
+// estimates are not determined by it).
+func (r *Result) LikelihoodUsable() bool {
+	return r.OK() || r.Status == StatusFlatMaximum
+}
+
 // OK reports whether the fit has a finite maximum and converged.
 func (r *Result) OK() bool {
 	return r.Status == StatusOK || r.Status == StatusNegativeProbs

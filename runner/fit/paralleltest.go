@@ -116,15 +116,17 @@ func ChiSquareP(x float64, df int) float64 {
 }
 
 // LRTest compares nested fits: 2 (ll_full - ll_restricted) on the difference
-// in the number of parameters.
+// in the number of parameters. A flat maximum enters with its
+// log-likelihood (LikelihoodUsable): the maximum is finite, only some of
+// its estimates are not determined.
 func LRTest(restricted, full *Result) Test {
 	if restricted == nil || full == nil {
 		return failedTest(TestLR.String(), "a model was not fitted")
 	}
-	if !restricted.OK() || !full.OK() {
+	if !restricted.LikelihoodUsable() || !full.LikelihoodUsable() {
 		var bad []string
 		for _, r := range []*Result{restricted, full} {
-			if !r.OK() {
+			if !r.LikelihoodUsable() {
 				bad = append(bad, fmt.Sprintf("%s: %s", r.Name, r.Status))
 			}
 		}
