@@ -1193,6 +1193,10 @@ func separationMessage(r *Result, st newtonState) string {
 		}
 		fmt.Fprintf(&b, " (%s: %s)", what, strings.Join(s.Parameters, ", "))
 	}
-	fmt.Fprintf(&b, " [log-likelihood approaches %.6f; information condition %.2g]", st.ll, r.Condition)
+	reached := "approaches"
+	if s == nil || !s.Proved {
+		reached = "reached"
+	}
+	fmt.Fprintf(&b, " [log-likelihood %s %.6f; information condition %.2g]", reached, st.ll, r.Condition)
 	return b.String()
 }

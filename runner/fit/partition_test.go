@@ -250,13 +250,16 @@ func TestPartitionedRankCheckAsLocal(t *testing.T) {
 	}
 }
 
-// unprovenWords is a separation message with its first clause and the
-// label of the direction's parameters taken out: what a proved and an
+// unprovenWords is a separation message with its first clause, the label
+// of the direction's parameters and the verb of the log-likelihood taken
+// out: what a proved and an
 // unproved separation of the same fit say alike.
 func unprovenWords(msg string) string {
 	if i := strings.Index(msg, "; predictors involved"); i >= 0 {
 		msg = msg[i:]
 	}
 	msg = strings.Replace(msg, "(diverging: ", "(", 1)
+	msg = strings.Replace(msg, "[log-likelihood approaches ", "[log-likelihood ", 1)
+	msg = strings.Replace(msg, "[log-likelihood reached ", "[log-likelihood ", 1)
 	return strings.Replace(msg, "(along that direction: ", "(", 1)
 }
