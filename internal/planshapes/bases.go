@@ -102,6 +102,9 @@ assumptions:
     site: {proportions: [0.25, 0.25, 0.25, 0.25]}
     treat: {proportions: [0.5, 0.5]}
   correlations: [{between: [age, dose], r: 0.3}]
+  missing:
+    dose: {proportion: 0.1, given: {age: 0.5, y: -0.3}}
+    bmi: {proportion: 0.05}
   outcomes:
     y:
       proportions: [0.1, 0.2, 0.3, 0.4]
