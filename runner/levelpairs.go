@@ -121,53 +121,47 @@ func levelPairSets(an *Analysis, or *OutcomeResult, res *fit.Result, effects fun
 	return out
 }
 
-// eachPair calls f for every pair (a, b) of levels, a before b.
-func eachPair(levels []string, f func(a, b string) error) error {
-	for i, a := range levels {
-		for _, b := range levels[i+1:] {
-			if err := f(a, b); err != nil {
-				return err
-			}
+// pairsOf lists the pairs (a, b) of n levels, a before b, in order.
+func pairsOf(n int) [][2]int {
+	var out [][2]int
+	for a := 0; a < n; a++ {
+		for b := a + 1; b < n; b++ {
+			out = append(out, [2]int{a, b})
 		}
 	}
-	return nil
+	return out
 }
 
 // pairEffects is the differences of average marginal effects of every pair
 // of levels of categorical source s over the outcome's rows, by fit res:
-// each pair by fit.AverageDifference from the rows with the column at a
-// to the rows with it at b, so the delta method runs on the whole
-// covariance of the model.
+// each pair (a, b) as fit.AverageDifference from the rows with the column
+// at a to the rows with it at b gives it (fit.AverageDifferences, each
+// row's probabilities computed once per level), so the delta method runs
+// on the whole covariance of the model.
 func pairEffects(or *OutcomeResult, res *fit.Result, s int, levels []string, level float64) MarginalSet {
 	set := MarginalSet{Kind: "level_pairs"}
 	dz, d := or.Design, or.Data
-	name := dz.Sources[s].Name
-	var X0 []float64
-	from := ""
-	err := eachPair(levels, func(a, b string) error {
-		var err error
-		if a != from {
-			if X0, err = atValue(dz, d.X, d.N, s, float64(dz.Level(s, a))); err != nil {
-				return err
-			}
-			from = a
-		}
-		X1, err := atValue(dz, d.X, d.N, s, float64(dz.Level(s, b)))
-		if err != nil {
-			return err
-		}
-		eff, err := res.AverageDifference(name, X0, X1, d.Offset, d.Weights, level)
-		if err != nil {
-			return err
-		}
+	S := len(dz.Sources)
+	at := make([]float64, len(levels))
+	for v, l := range levels {
+		at[v] = float64(dz.Level(s, l))
+	}
+	pairs := pairsOf(len(levels))
+	raw := make([]float64, S)
+	effs, err := res.AverageDifferences(dz.Sources[s].Name, len(levels), d.N, func(v, i int, x []float64) error {
+		copy(raw, d.X[i*S:(i+1)*S])
+		raw[s] = at[v]
+		return dz.Row(raw, x)
+	}, pairs, d.Offset, d.Weights, level)
+	if err != nil {
+		set.Error = err.Error()
+		return set
+	}
+	for c, eff := range effs {
 		for i := range eff {
-			eff[i].Change = a + " to " + b
+			eff[i].Change = levels[pairs[c][0]] + " to " + levels[pairs[c][1]]
 		}
 		set.Effects = append(set.Effects, eff...)
-		return nil
-	})
-	if err != nil {
-		set.Effects, set.Error = nil, err.Error()
 	}
 	return set
 }
@@ -204,14 +198,15 @@ func pairOddsRatios(or *OutcomeResult, res *fit.Result, s int, levels []string, 
 		return x, dz.Row(raw, x)
 	}
 	var out []PairOddsRatio
-	err := eachPair(levels, func(a, b string) error {
+	for _, ab := range pairsOf(len(levels)) {
+		a, b := levels[ab[0]], levels[ab[1]]
 		xa, err := row(a)
 		if err != nil {
-			return err
+			return nil, err.Error()
 		}
 		xb, err := row(b)
 		if err != nil {
-			return err
+			return nil, err.Error()
 		}
 		d := make([]float64, len(res.Predictors))
 		for i, c := range idx {
@@ -219,15 +214,11 @@ func pairOddsRatios(or *OutcomeResult, res *fit.Result, s int, levels []string, 
 		}
 		ors, err := res.OddsRatioOf(dz.Sources[s].Name, d, level)
 		if err != nil {
-			return err
+			return nil, err.Error()
 		}
 		for _, o := range ors {
 			out = append(out, PairOddsRatio{CombinedOddsRatio: o, Change: b + " against " + a, HoldsAt: holds})
 		}
-		return nil
-	})
-	if err != nil {
-		return nil, err.Error()
 	}
 	return out, ""
 }

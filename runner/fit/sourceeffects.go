@@ -14,11 +14,7 @@ import (
 // (n x K); offset and w may be nil. Standard errors by the delta method
 // with the analytic Jacobian of the probabilities.
 func (r *Result) AverageDifference(name string, X0, X1, offset, w []float64, level float64) ([]MarginalEffect, error) {
-	pr, err := r.problem()
-	if err != nil {
-		return nil, err
-	}
-	K, J, P := len(r.Predictors), r.J, len(r.Estimates)
+	K := len(r.Predictors)
 	if len(X0) != len(X1) || K > 0 && len(X0)%K != 0 {
 		return nil, fmt.Errorf("design rows of different sizes")
 	}
@@ -26,29 +22,76 @@ func (r *Result) AverageDifference(name string, X0, X1, offset, w []float64, lev
 	if K > 0 {
 		n = len(X0) / K
 	}
-	eff := make([]float64, J)
-	jac := make([]float64, J*P)
-	p0, p1 := make([]float64, J), make([]float64, J)
+	X := [2][]float64{X0, X1}
+	out, err := r.AverageDifferences(name, 2, n, func(v, i int, x []float64) error {
+		copy(x, X[v][i*K:(i+1)*K])
+		return nil
+	}, [][2]int{{0, 1}}, offset, w, level)
+	if err != nil {
+		return nil, err
+	}
+	return out[0], nil
+}
+
+// AverageDifferences is AverageDifference for several pairs of versions
+// of the same n rows (a categorical predictor set to each of its levels):
+// row(v, i, x) fills x with the design row of row i in version v, and
+// pair (a, b) gets the average of P(y=j | version b) - P(y=j | version a),
+// the values AverageDifference gives for those two versions' rows to the
+// last bit; each row's probabilities and their Jacobian are computed once
+// per version, not once per pair.
+func (r *Result) AverageDifferences(name string, versions, n int, row func(v, i int, x []float64) error, pairs [][2]int, offset, w []float64, level float64) ([][]MarginalEffect, error) {
+	pr, err := r.problem()
+	if err != nil {
+		return nil, err
+	}
+	K, J, P := len(r.Predictors), r.J, len(r.Estimates)
+	eff := make([][]float64, len(pairs))
+	jac := make([][]float64, len(pairs))
+	for c := range pairs {
+		eff[c], jac[c] = make([]float64, J), make([]float64, J*P)
+	}
+	p, g := make([][]float64, versions), make([][]float64, versions)
+	for v := range p {
+		p[v] = make([]float64, J)
+	}
+	x := make([]float64, K)
+	var rowErr error
 	tot := eachWeightedRow(n, w, offset, func(i int, wi, off float64) {
-		x0, x1 := X0[i*K:(i+1)*K], X1[i*K:(i+1)*K]
-		pr.probsAt(r.Estimates, x1, off, p1)
-		g1 := pr.rowJacobian(r.Estimates, x1, off)
-		pr.probsAt(r.Estimates, x0, off, p0)
-		g0 := pr.rowJacobian(r.Estimates, x0, off)
-		for j := 0; j < J; j++ {
-			eff[j] += wi * (p1[j] - p0[j])
-			for a := 0; a < P; a++ {
-				jac[j*P+a] += wi * (g1[j*P+a] - g0[j*P+a])
+		if rowErr != nil {
+			return
+		}
+		for v := range p {
+			if rowErr = row(v, i, x); rowErr != nil {
+				return
+			}
+			pr.probsAt(r.Estimates, x, off, p[v])
+			g[v] = pr.rowJacobian(r.Estimates, x, off)
+		}
+		for c, ab := range pairs {
+			p0, p1, g0, g1 := p[ab[0]], p[ab[1]], g[ab[0]], g[ab[1]]
+			for j := 0; j < J; j++ {
+				eff[c][j] += wi * (p1[j] - p0[j])
+				for a := 0; a < P; a++ {
+					jac[c][j*P+a] += wi * (g1[j*P+a] - g0[j*P+a])
+				}
 			}
 		}
 	})
-	for j := range eff {
-		eff[j] /= tot
+	if rowErr != nil {
+		return nil, rowErr
 	}
-	for a := range jac {
-		jac[a] /= tot
+	out := make([][]MarginalEffect, len(pairs))
+	for c := range pairs {
+		for j := range eff[c] {
+			eff[c][j] /= tot
+		}
+		for a := range jac[c] {
+			jac[c][a] /= tot
+		}
+		out[c] = r.effectRows(name, true, eff[c], jac[c], level)
 	}
-	return r.effectRows(name, true, eff, jac, level), nil
+	return out, nil
 }
 
 // AverageSlope is the weighted average over rows of
