@@ -11,6 +11,7 @@ import (
 	"strings"
 	"testing"
 
+	"ordplan/internal/rscript"
 	"ordplan/runner/data"
 )
 
@@ -102,4 +103,55 @@ func mustFloat(t *testing.T, s string) float64 {
 		t.Fatal(err)
 	}
 	return x
+}
+
+// R's read.csv, split by imputed_set, reads the written sets back to the
+// values the fits used, bit for bit (numbers printed by R with 17
+// significant digits), the outcome's labels and g's levels as written.
+func TestCompletedSetsReadInR(t *testing.T) {
+	rscript.Require(t)
+	p := chainedFixture(t, "  imputation: {sets: 3, iterations: 2, write_sets: true}")
+	// x to the last digit (a third of the fixture's): what the sets
+	// write must read back to every bit.
+	b, _ := os.ReadFile(p.Data.Path)
+	lines := strings.Split(string(b), "\n")
+	for i := 1; i < len(lines); i++ {
+		if f := strings.Split(lines[i], ","); len(f) == 3 && f[1] != "" {
+			f[1] = strconv.FormatFloat(mustFloat(t, f[1])/3, 'g', -1, 64)
+			lines[i] = strings.Join(f, ",")
+		}
+	}
+	os.WriteFile(p.Data.Path, []byte(strings.Join(lines, "\n")), 0o644)
+	r := runPlan(t, p, 1)
+	im := r.Outcomes[0].Imputed
+	text, err := im.CompletedSetsCSV()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(text), "333333") {
+		t.Fatal("the sets hold no value with many digits")
+	}
+	dir := t.TempDir()
+	os.WriteFile(filepath.Join(dir, "sets.csv"), text, 0o644)
+	os.WriteFile(filepath.Join(dir, "levels.txt"), []byte("a\nb\nc\n"), 0o644)
+	vals := rscript.Run(t, dir, "testdata/rcheck/readsets.R")
+	if got := vals.Scalar(t, "sets"); got != float64(im.M) {
+		t.Fatalf("R reads %g sets, want %d", got, im.M)
+	}
+	for s, ds := range im.Data {
+		k := strconv.Itoa(s + 1)
+		lines, ys, xs, gs := vals.Get(t, "line"+k), vals.Get(t, "y"+k), vals.Get(t, "x"+k), vals.Get(t, "g"+k)
+		if len(xs) != ds.N {
+			t.Fatalf("set %d: R reads %d rows, the set has %d", s+1, len(xs), ds.N)
+		}
+		xcol, gcol := slices.Index(ds.Predictors, "x"), slices.Index(ds.Predictors, "g")
+		for i := 0; i < ds.N; i++ {
+			y, _ := strconv.ParseFloat(ds.Categories[ds.Y[i]], 64)
+			if lines[i] != float64(ds.Lines[i]) || ys[i] != y || gs[i] != ds.X[i*ds.K+gcol] ||
+				math.Float64bits(xs[i]) != math.Float64bits(ds.X[i*ds.K+xcol]) {
+				t.Fatalf("set %d row %d: R reads line %g, y %g, x %v, g %g; the fitted set has line %d, y %s, x %v, g %g",
+					s+1, i+1, lines[i], ys[i], xs[i], gs[i], ds.Lines[i], ds.Categories[ds.Y[i]], ds.X[i*ds.K+xcol], ds.X[i*ds.K+gcol])
+			}
+		}
+	}
 }
