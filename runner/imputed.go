@@ -515,12 +515,14 @@ func pooledLR(or *OutcomeResult, perSet [][]*FitEntry, r, f *FitEntry) fit.Test 
 	for s := range perSet {
 		rs[s], fs[s] = perSet[s][ri].Result, perSet[s][fi].Result
 	}
-	return pooledLROf(or.Imputed.Sets, r.Result, f.Result, rs, fs)
+	return pooledLROf(or.Imputed.Sets, or.Imputed.Sets, r.Result, f.Result, rs, fs)
 }
 
 // pooledLROf is the D3 test of the pooled fit r within the pooled fit f,
-// with their fits rs and fs on each of the imputed sets.
-func pooledLROf(sets []*fit.Data, r, f *fit.Result, rs, fs []*fit.Result) fit.Test {
+// with their fits rs and fs on each of the imputed sets: f's input on
+// set k is sets[k], r's rsets[k] (the same, or the same rows without
+// columns r has not).
+func pooledLROf(sets, rsets []*fit.Data, r, f *fit.Result, rs, fs []*fit.Result) fit.Test {
 	k := f.NParams - r.NParams
 	if k <= 0 {
 		return missingTest(fit.TestLR, "the models are not nested")
@@ -532,7 +534,7 @@ func pooledLROf(sets []*fit.Data, r, f *fit.Result, rs, fs []*fit.Result) fit.Te
 		if err != nil || lf.Bad {
 			return missingTest(fit.TestLR, fmt.Sprintf("the full model cannot be evaluated at its pooled estimates in imputed set %d", s+1))
 		}
-		lr, err := fit.PartitionSums(d, r.Model, r.Estimates, 0)
+		lr, err := fit.PartitionSums(rsets[s], r.Model, r.Estimates, 0)
 		if err != nil || lr.Bad {
 			return missingTest(fit.TestLR, fmt.Sprintf("the restricted model cannot be evaluated at its pooled estimates in imputed set %d", s+1))
 		}
@@ -668,6 +670,7 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 	applyRules(an, or)
 	runPooledFitStats(an, or)
 	runPooledGoodnessOfFit(an, or)
+	runPooledTermTests(an, or, opt)
 	for _, h := range an.Inference.Hypotheses {
 		or.Hypotheses = append(or.Hypotheses, hypothesisTests(h, or, an.Level)...)
 	}

@@ -227,21 +227,30 @@ func baseTerms(dz *design.Design, k int) []int {
 func interactionPartners(dz *design.Design, k int) []int {
 	mine := baseTerms(dz, k)
 	var out []int
-	for i := range dz.Terms {
-		if i == k || dz.Terms[i].Kind != design.KindInteraction {
-			continue
-		}
-		all := baseTerms(dz, i)
-		if len(all) <= len(mine) || !containsAll(all, mine) {
-			continue
-		}
-		for _, b := range all {
+	for _, i := range containingInteractions(dz, k) {
+		for _, b := range baseTerms(dz, i) {
 			if !slices.Contains(mine, b) && !slices.Contains(out, b) {
 				out = append(out, b)
 			}
 		}
 	}
 	slices.Sort(out)
+	return out
+}
+
+// containingInteractions lists, in design order, the interactions that
+// contain term k: those made of every term k is made of, and more.
+func containingInteractions(dz *design.Design, k int) []int {
+	mine := baseTerms(dz, k)
+	var out []int
+	for i := range dz.Terms {
+		if i == k || dz.Terms[i].Kind != design.KindInteraction {
+			continue
+		}
+		if all := baseTerms(dz, i); len(all) > len(mine) && containsAll(all, mine) {
+			out = append(out, i)
+		}
+	}
 	return out
 }
 

@@ -75,7 +75,9 @@ type OutcomeDecisions struct {
 	// GOFPooling: on imputed data, how those tests were pooled.
 	GOFPooling *GOFPooling        `json:"goodness_of_fit_pooling,omitempty"`
 	Hypotheses []HypothesisResult `json:"hypotheses,omitempty"`
-	Marginal   []MarginalSet      `json:"marginal_effects,omitempty"`
+	// TermTests: each term of the chosen model tested (absent without one).
+	TermTests []TermTest    `json:"term_tests,omitempty"`
+	Marginal  []MarginalSet `json:"marginal_effects,omitempty"`
 	// LevelPairs: comparisons between every pair of levels of the
 	// categorical predictors of inference.level_pairs.
 	LevelPairs []LevelPairSet `json:"level_pairs,omitempty"`
@@ -244,6 +246,7 @@ func BuildDecisions(r *Result) *Decisions {
 		od.PatternSplit = or.PatternSplit
 		od.GOFPooling = or.GOFPooling
 		od.Hypotheses = or.Hypotheses
+		od.TermTests = or.TermTests
 		od.Marginal = or.Marginal
 		od.LevelPairs = or.LevelPairs
 		d.Outcomes = append(d.Outcomes, od)

@@ -145,6 +145,9 @@ func runOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash 
 	if err := runInference(an, or); err != nil {
 		return nil, err
 	}
+
+	// 7. Tests of each term of the chosen model.
+	runTermTests(an, or, opt)
 	return or, nil
 }
 

@@ -66,6 +66,9 @@ type OutcomeResult struct {
 	GOFPooling *GOFPooling
 
 	Hypotheses []HypothesisResult // the plan's hypotheses, per model
+	// TermTests: each term of the chosen model tested (Wald and
+	// likelihood ratio); nil without a usable chosen model.
+	TermTests []TermTest
 
 	dataOptions data.Options   // how Data was read (rules read further columns the same way)
 	Marginal    []MarginalSet  // marginal effects of the chosen model

@@ -1,0 +1,221 @@
+package runner
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"ordplan/internal/refdata"
+	"ordplan/internal/rscript"
+	"ordplan/runner/fit"
+)
+
+// housingTwo writes the Copenhagen housing table (Madsen 1976;
+// testdata/reference/housing_factors.csv) with satisfaction collapsed to
+// two categories (low against medium or high: y 0 and 1) into dir as
+// housing2.csv, and a plan that fits the cumulative logit model with
+// parallel effects of infl, type, cont and infl x cont to it, with the
+// frequency weights.
+func housingTwo(t *testing.T, dir string) string {
+	t.Helper()
+	raw, err := os.ReadFile(refdata.Path("housing_factors.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(raw)), "\n")
+	var b strings.Builder
+	b.WriteString("y,infl,type,cont,freq\n")
+	for _, l := range lines[1:] {
+		f := strings.Split(l, ",")
+		y := "1"
+		if f[0] == "1" {
+			y = "0"
+		}
+		fmt.Fprintf(&b, "%s,%s,%s,%s,%s\n", y, f[1], f[2], f[3], f[4])
+	}
+	if err := os.WriteFile(filepath.Join(dir, "housing2.csv"), []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return `version: 1
+title: housing, two categories
+data: {file: housing2.csv, weights: freq}
+outcomes: [{column: y}]
+categorical:
+  infl: {levels: [low, medium, high]}
+  type: {levels: [tower, apartment, atrium, terrace]}
+  cont: {levels: [low, high]}
+predictors: [infl, type, cont, {interact: [infl, cont]}]
+models: {approaches: [cumulative], effects: [parallel]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: aic}
+`
+}
+
+// TestTermTestsAgainstGlm: with two categories the cumulative logit model
+// is logistic regression, so each term test of the chosen model must be
+// base R's: the likelihood-ratio statistic is the difference of the
+// deviances of glm's fits with and without the term (and the interaction
+// containing it), and the Wald statistic b' V^-1 b from glm's coef() and
+// vcov() (for the logit link the observed information is glm's expected
+// one). Data: the Copenhagen housing table (Madsen 1976), published, in
+// testdata/reference; script runner/testdata/rcheck/termtests.R.
+func TestTermTestsAgainstGlm(t *testing.T) {
+	rscript.Require(t)
+	dir := t.TempDir()
+	p := planIn(t, dir, housingTwo(t, dir))
+	or := runPlan(t, p, 0).Outcomes[0]
+	vals := rscript.Run(t, dir, "testdata/rcheck/termtests.R")
+	want := map[string]string{"infl": "infl", "type": "type", "cont": "cont", "infl&cont": "infl_cont"}
+	if len(or.TermTests) != 4 {
+		t.Fatalf("%d term tests: %+v", len(or.TermTests), or.TermTests)
+	}
+	for _, tt := range or.TermTests {
+		name := want[tt.Term]
+		for _, c := range []struct {
+			kind string
+			got  fit.Test
+		}{{"lr", tt.LR}, {"wald", tt.Wald}} {
+			r := vals.Get(t, c.kind+"_"+name)
+			if !c.got.OK {
+				t.Errorf("%s %s: not computed: %s", tt.Term, c.kind, c.got.Reason)
+				continue
+			}
+			if d := math.Abs(c.got.Chi2 - r[0]); !(d <= 1e-6*math.Max(1, r[0])) || c.got.DF != int(r[1]) {
+				t.Errorf("%s %s: chi2(%d) = %.10g, glm chi2(%g) = %.10g", tt.Term, c.kind, c.got.DF, c.got.Chi2, r[1], r[0])
+			}
+			t.Logf("%s %s: chi2(%d) = %.8f, glm %.8f", tt.Term, c.kind, c.got.DF, c.got.Chi2, r[0])
+		}
+	}
+	// The rule for a term inside an interaction: tested with it.
+	if got := or.TermTests[0]; strings.Join(got.With, ",") != "infl&cont" || len(got.Columns) != 4 {
+		t.Errorf("infl is tested as %+v", got)
+	}
+}
+
+// TestTermTestsLargeSample: on a large invented sample (seeded, with
+// small effects) the Wald and likelihood-ratio statistics of each term
+// agree closely, as their common asymptotic theory says (they differ by
+// terms of order n^-1/2 relative); the partial and nonparallel fits of
+// the grid are fitted too, and the chosen model's tests follow its
+// structure (a nonparallel term has J-1 parameters per column).
+func TestTermTestsLargeSample(t *testing.T) {
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(2026, 12))
+	var b strings.Builder
+	b.WriteString("y,x,g\n")
+	const n = 20000
+	for i := 0; i < n; i++ {
+		x := rng.NormFloat64()
+		g := rng.IntN(3)
+		eta := 0.04*x + []float64{0, 0.05, -0.04}[g]
+		u := rng.Float64()
+		z := math.Log(u / (1 - u)) // standard logistic
+		y := 1
+		for _, cut := range []float64{-0.8, 0.3, 1.2} {
+			if z+eta > cut {
+				y++
+			}
+		}
+		fmt.Fprintf(&b, "%d,%.5f,%s\n", y, x, []string{"a", "b", "c"}[g])
+	}
+	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
+	for _, effects := range []string{"parallel", "nonparallel"} {
+		p := planIn(t, dir, `version: 1
+data: {file: d.csv}
+outcomes: [{column: y}]
+categorical: {g: {levels: [a, b, c]}}
+predictors: [x, g]
+models: {approaches: [cumulative], effects: [`+effects+`]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: aic}
+`)
+		or := runPlan(t, p, 0).Outcomes[0]
+		per := map[string]int{"parallel": 1, "nonparallel": 3}[effects]
+		for _, tt := range or.TermTests {
+			if !tt.Wald.OK || !tt.LR.OK || tt.Wald.DF != tt.LR.DF || tt.Wald.DF != per*len(tt.Columns) {
+				t.Fatalf("%s %s: %+v", effects, tt.Term, tt)
+			}
+			rel := math.Abs(tt.LR.Chi2-tt.Wald.Chi2) / tt.Wald.Chi2
+			t.Logf("%s %s: Wald chi2(%d) = %.4f, LR %.4f, relative difference %.2g", effects, tt.Term, tt.Wald.DF, tt.Wald.Chi2, tt.LR.Chi2, rel)
+			if rel > 0.01 {
+				t.Errorf("%s %s: Wald %.4f and LR %.4f differ by %.2g relative", effects, tt.Term, tt.Wald.Chi2, tt.LR.Chi2, rel)
+			}
+		}
+	}
+}
+
+// TestTermTestsConstrained: a constrained column that is the only column
+// of its constraint group is, in likelihood, the same column with free
+// slopes (b_m = phi_m g is a reparameterization of b_1 .. b_J-1), so its
+// term tests equal those of the partial model in which it is nonparallel:
+// the likelihood-ratio test exactly (the same two likelihoods), the Wald
+// test too (its delta-method covariance of phi_m g is the inverse
+// information of the free slopes). Two columns that are all of a group
+// have no test; a column whose group keeps others is tested by its g.
+func TestTermTestsConstrained(t *testing.T) {
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(7, 70))
+	var b strings.Builder
+	b.WriteString("y,x,w,g\n")
+	for i := 0; i < 800; i++ {
+		x, w := rng.NormFloat64(), rng.NormFloat64()
+		g := rng.IntN(3)
+		eta := 0.5*x - 0.3*w + []float64{0, 0.4, -0.3}[g]
+		u := rng.Float64()
+		z := math.Log(u / (1 - u))
+		y := 1
+		for m, cut := range []float64{-1, 0, 1} {
+			if z+eta*(1-0.2*float64(m)) > cut {
+				y++
+			}
+		}
+		fmt.Fprintf(&b, "%d,%.5f,%.5f,%s\n", y, x, w, []string{"a", "b", "c"}[g])
+	}
+	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
+	run := func(effects, partial string) *OutcomeResult {
+		return runPlan(t, planIn(t, dir, `version: 1
+data: {file: d.csv}
+outcomes: [{column: y}]
+categorical: {g: {levels: [a, b, c]}}
+predictors: [x, w, g]
+models: {approaches: [cumulative], effects: [`+effects+`], partial: `+partial+`}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: aic}
+`), 0).Outcomes[0]
+	}
+	byTerm := func(or *OutcomeResult, term string) TermTest {
+		for _, tt := range or.TermTests {
+			if tt.Term == term {
+				return tt
+			}
+		}
+		t.Fatalf("no test of %s in %s", term, or.Chosen.ID)
+		return TermTest{}
+	}
+	cons, part := run("constrained", "{free: [x]}"), run("partial", "{free: [x]}")
+	c, p := byTerm(cons, "x"), byTerm(part, "x")
+	for _, pair := range [][2]fit.Test{{c.Wald, p.Wald}, {c.LR, p.LR}} {
+		if !pair[0].OK || !pair[1].OK || pair[0].DF != 3 || pair[1].DF != 3 || math.Abs(pair[0].Chi2-pair[1].Chi2) > 1e-6*pair[1].Chi2 {
+			t.Errorf("x alone in its group: %+v; nonparallel in the partial model: %+v", pair[0], pair[1])
+		}
+	}
+	t.Logf("x: Wald %.8f / %.8f, LR %.8f / %.8f (constrained / partial)", c.Wald.Chi2, p.Wald.Chi2, c.LR.Chi2, p.LR.Chi2)
+	if !strings.Contains(c.Tested[1], "phi[2]*x") {
+		t.Errorf("tested %v", c.Tested)
+	}
+	g := byTerm(run("constrained", "{free: [g]}"), "g")
+	if g.Wald.OK || g.LR.OK || !strings.Contains(g.Wald.Reason, "are all the columns of a constraint group") {
+		t.Errorf("g alone in its group: %+v", g)
+	}
+	shared := run("constrained", "{free: [x, w]}")
+	if x := byTerm(shared, "x"); !x.Wald.OK || !x.LR.OK || x.Wald.DF != 1 || x.LR.DF != 1 {
+		t.Errorf("x with w in its group: %+v", x)
+	}
+}
