@@ -219,3 +219,89 @@ rules:
 		t.Errorf("x with w in its group: %+v", x)
 	}
 }
+
+// TestPooledTermTestsAgainstMitml: on imputed data the Wald test of a
+// term is pooled by D1 and the likelihood-ratio test by D3. The D1 test of
+// a three-level factor is checked against the general-purpose
+// multiple-imputation package mitml (testModels, method D1, of the glm
+// fits of y ~ x + g against y ~ x on each set): the program's fits are the
+// two-category cumulative logit models, glm's. Data: invented (seeded):
+// y from a logistic model in x and g, g missing in about a quarter of the
+// rows, each imputed set drawing a missing g at random from the three
+// levels (any completed sets serve to check the pooling).
+func TestPooledTermTestsAgainstMitml(t *testing.T) {
+	rscript.Require(t)
+	if !rscript.HasPackage(t, "mitml") {
+		t.Skip("the R package mitml is not installed (Debian: apt-get install r-cran-mitml): the check against it is skipped")
+	}
+	const m, n = 5, 200
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(5, 55))
+	levels := []string{"a", "b", "c"}
+	var orig, stacked strings.Builder
+	orig.WriteString("y,x,g\n")
+	stacked.WriteString("imp,y,x,g\n")
+	sets := make([]strings.Builder, m)
+	type row struct {
+		y, g int
+		x    float64
+		miss bool
+	}
+	rows := make([]row, n)
+	for i := range rows {
+		x, g := rng.NormFloat64(), rng.IntN(3)
+		y := 0
+		if rng.Float64() < 1/(1+math.Exp(-(0.3+0.8*x+[]float64{0, 0.9, -0.6}[g]))) {
+			y = 1
+		}
+		rows[i] = row{y, g, x, rng.Float64() < 0.25}
+		gs := levels[g]
+		if rows[i].miss {
+			gs = ""
+		}
+		fmt.Fprintf(&orig, "%d,%.6f,%s\n", y, x, gs)
+	}
+	for k := range sets {
+		sets[k].WriteString("y,x,g\n")
+		for _, r := range rows {
+			g := r.g
+			if r.miss {
+				g = rng.IntN(3)
+			}
+			fmt.Fprintf(&sets[k], "%d,%.6f,%s\n", r.y, r.x, levels[g])
+			fmt.Fprintf(&stacked, "%d,%d,%.6f,%s\n", k+1, r.y, r.x, levels[g])
+		}
+		os.WriteFile(filepath.Join(dir, fmt.Sprintf("imp%d.csv", k+1)), []byte(sets[k].String()), 0o644)
+	}
+	os.WriteFile(filepath.Join(dir, "orig.csv"), []byte(orig.String()), 0o644)
+	os.WriteFile(filepath.Join(dir, "stacked.csv"), []byte(stacked.String()), 0o644)
+	os.WriteFile(filepath.Join(dir, "m.txt"), []byte(fmt.Sprintln(m)), 0o644)
+	or := runPlan(t, planIn(t, dir, `version: 1
+data: {file: orig.csv, imputed: {file: stacked.csv, column: imp}}
+outcomes: [{column: y}]
+categorical: {g: {levels: [a, b, c]}}
+predictors: [x, g]
+models: {approaches: [cumulative], effects: [parallel]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: aic}
+`), 0).Outcomes[0]
+	if or.Imputed == nil || len(or.TermTests) != 2 {
+		t.Fatalf("term tests on imputed data: %+v", or.TermTests)
+	}
+	g := or.TermTests[1]
+	if g.Term != "g" || g.Wald.Pooled != "D1" || g.LR.Pooled != "D3" || !g.LR.OK || g.LR.DF != 2 {
+		t.Fatalf("g: %+v", g)
+	}
+	want := rscript.Run(t, dir, "testdata/rcheck/termpool.R").Get(t, "d1")
+	F := g.Wald.Chi2 / float64(g.Wald.DF)
+	for _, c := range []struct {
+		what      string
+		got, want float64
+	}{{"F", F, want[0]}, {"df1", float64(g.Wald.DF), want[1]}, {"df2", g.Wald.DF2, want[2]}, {"p", g.Wald.P, want[3]}} {
+		if d := math.Abs(c.got - c.want); !(d <= 1e-6*math.Max(1e-3, math.Abs(c.want))) {
+			t.Errorf("g, pooled Wald %s: %.10g, mitml %.10g", c.what, c.got, c.want)
+		}
+	}
+	t.Logf("g: D1 F(%d, %.2f) = %.6f, p %.6g; mitml F(%g, %.2f) = %.6f, p %.6g (RIV %.3f); D3 F(%d, %.2f) = %.6f", g.Wald.DF, g.Wald.DF2, F, g.Wald.P, want[1], want[2], want[0], want[3], want[4], g.LR.DF, g.LR.DF2, g.LR.Chi2/2)
+}
