@@ -38,6 +38,8 @@ var references = []reference{
 	{"pulkstenis", "Pulkstenis, E. & Robinson, T.J. (2004). Goodness-of-fit tests for ordinal response regression models. Statistics in Medicine 23:999-1014."},
 	{"rubin", "Rubin, D.B. (1987). Multiple Imputation for Nonresponse in Surveys. Wiley."},
 	{"d2", "Li, K.H., Meng, X.L., Raghunathan, T.E. & Rubin, D.B. (1991). Significance levels from repeated p-values with multiply-imputed data. Statistica Sinica 1:65-92."},
+	{"d1", "Li, K.H., Raghunathan, T.E. & Rubin, D.B. (1991). Large-sample significance levels from multiply imputed data using moment-based statistics and an F reference distribution. Journal of the American Statistical Association 86:1065-1073."},
+	{"d3", "Meng, X.L. & Rubin, D.B. (1992). Performing likelihood ratio tests with multiply-imputed data sets. Biometrika 79:103-111."},
 	{"vanbuuren", "van Buuren, S. (2018). Flexible Imputation of Missing Data, 2nd ed. CRC Press."},
 	{"little", "Little, R.J.A. (1988). Missing-data adjustments in large surveys. Journal of Business and Economic Statistics 6:287-296."},
 	{"augment", "White, I.R., Daniel, R. & Royston, P. (2010). Avoiding bias due to perfect prediction in multiple imputation of incomplete categorical variables. Computational Statistics and Data Analysis 54:2267-2275."},
@@ -219,6 +221,9 @@ func writeMethods(d *doc, r *runner.Result) {
 		if or.GOFPooling != nil && or.Lipsitz != nil && !sampling {
 			s = append(s, fmt.Sprintf("On the imputed data these goodness-of-fit tests were computed on each imputed set with that set's fit of the chosen model, and their chi-square statistics were combined by the D2 rule %s, an approximation that is less powerful than the pooled tests of estimates or likelihoods.", c.cite("d2")))
 		}
+		if len(or.TermTests) > 0 {
+			s = append(s, termTestsMethods(or, sampling, c))
+		}
 		starts := p.Models.HasEffects(fit.ConstrainedEffects) || p.Models.HasEffects(fit.StereotypeEffects)
 		switch {
 		case or.Chosen != nil && starts:
@@ -335,4 +340,25 @@ func onlyCumulativeLogit(approaches []fit.Comparison, links []fit.Link) bool {
 		}
 	}
 	return true
+}
+
+// termTestsMethods says how each term of the chosen model was tested, and
+// what the tests assume.
+func termTestsMethods(or *runner.OutcomeResult, sampling bool, c *citer) string {
+	var s []string
+	if sampling {
+		s = append(s, "Each term of the chosen model was tested by a Wald test that all its slopes are 0, with the model's standard errors; with sampling weights the likelihood-ratio test against the model refitted without the term has no chi-square reference and was not computed.")
+	} else {
+		s = append(s, "Each term of the chosen model was tested by a Wald test that all its slopes are 0 and by a likelihood-ratio test against the chosen model refitted without the term on the same rows.")
+	}
+	s = append(s, "A term that takes part in an interaction was tested together with every interaction containing it, and each interaction on its own.")
+	if or.Imputed != nil {
+		if sampling {
+			s = append(s, fmt.Sprintf("On the imputed data the Wald tests were pooled by the D1 rule %s.", c.cite("d1")))
+		} else {
+			s = append(s, fmt.Sprintf("On the imputed data the Wald tests were pooled by the D1 rule %s and the likelihood-ratio tests by the D3 rule %s.", c.cite("d1"), c.cite("d3")))
+		}
+	}
+	s = append(s, "These tests assume the chosen model holds and refer their statistics to large-sample distributions: the Wald and likelihood-ratio statistics can differ in small samples, in large samples they reject for effects too small to matter, and a term associated with the outcome given the others is not thereby a cause of it.")
+	return strings.Join(s, " ")
 }

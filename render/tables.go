@@ -250,7 +250,11 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	for _, h := range or.Hypotheses {
 		testRow("hypothesis", "", "", h.Model+": "+h.Text, h.Test)
 	}
-	add("tests", "every test of the report: parallel lines, nested likelihood ratios, each model against its thresholds-only model, the Lipsitz and Pulkstenis-Robinson tests, the plan's hypotheses",
+	for _, tt := range or.TermTests {
+		testRow("term", "", "", or.Chosen.ID+": "+tt.Term, tt.Wald)
+		testRow("term", "", "", or.Chosen.ID+": "+tt.Term, tt.LR)
+	}
+	add("tests", "every test of the report: parallel lines, nested likelihood ratios, each model against its thresholds-only model, the Lipsitz and Pulkstenis-Robinson tests, the plan's hypotheses, the tests of each term of the chosen model",
 		[]string{"family", "approach", "link", "scope", "test", "chi2", "df", "p", "note"}, rows)
 
 	// The decision log.
@@ -264,6 +268,10 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 
 	if or.Chosen == nil || !or.Chosen.OK() {
 		return out
+	}
+	if len(or.TermTests) > 0 {
+		add("term-tests", "the Wald and likelihood-ratio tests of each term of the chosen model (tested_with: the interactions containing the term, tested with it; restricted_model: the refit without them; on imputed data chi2 is df x F, p from F(df, df2), df2 empty when infinite; note: why a test was not computed)",
+			termTestHead, termTestRows(or))
 	}
 	// Marginal effects.
 	if len(or.Marginal) > 0 {

@@ -670,7 +670,9 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 	applyRules(an, or)
 	runPooledFitStats(an, or)
 	runPooledGoodnessOfFit(an, or)
-	runPooledTermTests(an, or, opt)
+	if !opt.NoTermTests {
+		runPooledTermTests(an, or, opt)
+	}
 	for _, h := range an.Inference.Hypotheses {
 		or.Hypotheses = append(or.Hypotheses, hypothesisTests(h, or, an.Level)...)
 	}

@@ -14,11 +14,16 @@ import (
 	"ordplan/runner/fit"
 )
 
-// Options control a run; none of them changes the results.
+// Options control a run; none of them changes the results, except that
+// NoTermTests leaves some out.
 type Options struct {
 	Workers  int      // fits run at once (default: all cores)
 	Progress Progress // hears of every finished fit (nil: nobody)
 	Executor Executor // runs the grid's fits elsewhere (nil: here)
+	// NoTermTests leaves out the tests of each term of the chosen model
+	// (OutcomeResult.TermTests, one refit per term): a power study reads
+	// only the plan's hypotheses of each replicate.
+	NoTermTests bool
 }
 
 // Progress hears of the fits of a run as they finish.
@@ -147,7 +152,9 @@ func runOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash 
 	}
 
 	// 7. Tests of each term of the chosen model.
-	runTermTests(an, or, opt)
+	if !opt.NoTermTests {
+		runTermTests(an, or, opt)
+	}
 	return or, nil
 }
 

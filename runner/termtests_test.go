@@ -305,3 +305,45 @@ rules:
 	}
 	t.Logf("g: D1 F(%d, %.2f) = %.6f, p %.6g; mitml F(%g, %.2f) = %.6f, p %.6g (RIV %.3f); D3 F(%d, %.2f) = %.6f", g.Wald.DF, g.Wald.DF2, F, g.Wald.P, want[1], want[2], want[0], want[3], want[4], g.LR.DF, g.LR.DF2, g.LR.Chi2/2)
 }
+
+// TestTermTestsSamplingWeights: under sampling weights the fits maximize
+// a pseudo-likelihood, so each term has its Wald test (with the sandwich
+// errors) and a likelihood-ratio test shown as not computed, with no
+// refit made.
+func TestTermTestsSamplingWeights(t *testing.T) {
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(8, 80))
+	var b strings.Builder
+	b.WriteString("y,x,g,w\n")
+	for i := 0; i < 300; i++ {
+		x, g := rng.NormFloat64(), rng.IntN(3)
+		u := rng.Float64()
+		z := math.Log(u/(1-u)) + 0.6*x + []float64{0, 0.5, -0.4}[g]
+		y := 1
+		for _, cut := range []float64{-0.7, 0.7} {
+			if z > cut {
+				y++
+			}
+		}
+		fmt.Fprintf(&b, "%d,%.5f,%s,%.3f\n", y, x, []string{"a", "b", "c"}[g], 0.5+rng.Float64())
+	}
+	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
+	or := runPlan(t, planIn(t, dir, `version: 1
+data: {file: d.csv, weights: w, weight_kind: sampling}
+outcomes: [{column: y}]
+categorical: {g: {levels: [a, b, c]}}
+predictors: [x, g]
+models: {approaches: [cumulative], effects: [parallel]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: tic}
+`), 0).Outcomes[0]
+	if len(or.TermTests) != 2 {
+		t.Fatalf("%+v", or.TermTests)
+	}
+	for _, tt := range or.TermTests {
+		if !tt.Wald.OK || tt.LR.OK || tt.LR.Reason != pseudoReason || tt.Without != "" {
+			t.Errorf("%s: %+v", tt.Term, tt)
+		}
+	}
+}

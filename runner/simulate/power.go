@@ -220,7 +220,9 @@ func runReplicate(p *plan.Plan, sim *Sim, n, r int, path string, opt PowerOption
 	q.Data.SetFile(fmt.Sprintf("simulated n=%d replicate %d", n, r+1), path)
 	run := opt.Run
 	if run == nil {
-		run = func(q *plan.Plan) (*runner.Result, error) { return runner.Run(q, runner.Options{Workers: 1}) }
+		run = func(q *plan.Plan) (*runner.Result, error) {
+			return runner.Run(q, runner.Options{Workers: 1, NoTermTests: true})
+		}
 	}
 	res, err := run(&q)
 	if err != nil {

@@ -1,0 +1,75 @@
+package render
+
+import (
+	"strconv"
+	"strings"
+
+	"ordplan/render/numfmt"
+	"ordplan/runner"
+	"ordplan/runner/fit"
+)
+
+// writeTermTests writes the tests of each term of the chosen model.
+func writeTermTests(d *doc, or *runner.OutcomeResult) {
+	if len(or.TermTests) == 0 {
+		return
+	}
+	d.h(4, "Tests of each term")
+	d.p("Is each term associated with the outcome at all, given the other terms? For each term two tests of the hypothesis that all its slopes in the chosen model, %s, are 0 at every boundary: the Wald test, from the estimates and the model's standard errors, and the likelihood-ratio test, which compares the chosen model with the same model (comparison, link, effect structure of every other column) fitted without the term on the same rows. A term inside an interaction is tested together with every interaction containing it (column Tested with): its own slopes alone would measure its effect only where the other terms of the interaction are 0, which depends on their coding and centring; the interaction itself is tested alone. A constrained column that is the only column of its constraint group is tested by its effects at every boundary (the group's common factor goes with it); several columns that make up a whole constraint group have no test, since without them the common factor is not identified.", or.Chosen.ID)
+	pooled := false
+	var rows [][]string
+	for _, tt := range or.TermTests {
+		with := "(alone)"
+		if len(tt.With) > 0 {
+			with = strings.Join(tt.With, ", ")
+		}
+		row := []string{tt.Term, with}
+		for _, t := range []fit.Test{tt.Wald, tt.LR} {
+			pooled = pooled || t.Pooled != ""
+			row = append(row, termStatistic(t)...)
+		}
+		rows = append(rows, row)
+	}
+	d.captioned("Tests of each term of "+or.Chosen.ID).table([]string{"Term", "Tested with", "Wald", "p", "Likelihood ratio", "p"}, rows)
+	if pooled {
+		d.p("On imputed data the Wald test is pooled over the sets by D1 and the likelihood-ratio test by D3 (each set's statistic at its own estimates and at the pooled ones); both are F statistics on the degrees of freedom shown.")
+	}
+	d.p("The two tests rest on the same large-sample theory and agree closely in large samples; in small samples, or when an effect is large, they can differ, and the likelihood ratio is then usually preferred (it does not depend on how the model is parameterized; the Wald test does). With many observations both reject for effects too small to matter: read them with the estimates. A small p-value says the term is associated with the outcome given the other terms, not that it causes it.")
+}
+
+// termStatistic is a term test's statistic and p-value for the table, or
+// why it was not computed.
+func termStatistic(t fit.Test) []string {
+	if !t.OK {
+		return []string{"not computed: " + t.Reason, ""}
+	}
+	return []string{runner.TestStatistic(t), numfmt.PValue(t.P)}
+}
+
+// termTestHead is the header of table-term-tests.
+var termTestHead = []string{"model", "term", "tested_with", "columns", "test", "chi2", "df", "df2", "p", "pooled", "restricted_model", "note"}
+
+// termTestRows are the rows of table-term-tests: one per term and test.
+// On imputed data chi2 is df x F and p comes from F(df, df2) (df2 empty:
+// infinite).
+func termTestRows(or *runner.OutcomeResult) [][]string {
+	var rows [][]string
+	for _, tt := range or.TermTests {
+		for _, t := range []fit.Test{tt.Wald, tt.LR} {
+			row := []string{or.Chosen.ID, tt.Term, strings.Join(tt.With, " "), strings.Join(tt.Columns, " "), t.Name}
+			if !t.OK {
+				rows = append(rows, append(row, "", "", "", "", "", "", t.Reason))
+				continue
+			}
+			df2, restricted := "", ""
+			if t.Pooled != "" && t.DF2 > 0 {
+				df2 = csvNum(t.DF2)
+			}
+			if t.Name == fit.TestLR.String() {
+				restricted = tt.Without
+			}
+			rows = append(rows, append(row, csvNum(t.Chi2), strconv.Itoa(t.DF), df2, csvNum(t.P), t.Pooled, restricted, ""))
+		}
+	}
+	return rows
+}
