@@ -31,7 +31,7 @@ func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		return
 	}
 	writeChosen(d, r, or)
-	writeTermTests(d, or)
+	writeTermTests(d, r, or)
 	writeOddsRatios(d, r, or)
 	writeGoodnessOfFit(d, or)
 	writeHypotheses(d, r, or)

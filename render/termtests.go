@@ -10,7 +10,7 @@ import (
 )
 
 // writeTermTests writes the tests of each term of the chosen model.
-func writeTermTests(d *doc, or *runner.OutcomeResult) {
+func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	if len(or.TermTests) == 0 {
 		return
 	}
@@ -28,9 +28,15 @@ func writeTermTests(d *doc, or *runner.OutcomeResult) {
 			pooled = pooled || t.Pooled != ""
 			row = append(row, termStatistic(t)...)
 		}
+		if !tt.Wald.OK && !tt.LR.OK && tt.Wald.Reason == tt.LR.Reason {
+			row[4] = "not computed (the same reason)"
+		}
 		rows = append(rows, row)
 	}
 	d.captioned("Tests of each term of "+or.Chosen.ID).table([]string{"Term", "Tested with", "Wald", "p", "Likelihood ratio", "p"}, rows)
+	if a := r.Analysis; a != nil && a.Errors.Covariance.IsSandwich() && !a.Errors.Sampling {
+		d.p("The Wald tests use the standard errors of the %s, which do not rest on the model's variance being right; the likelihood-ratio tests rest on it (and treat the rows as independent), so where the two disagree this may be why.", a.Errors.Covariance.Phrase())
+	}
 	if pooled {
 		d.p("On imputed data the Wald test is pooled over the sets by D1 and the likelihood-ratio test by D3 (each set's statistic at its own estimates and at the pooled ones); both are F statistics on the degrees of freedom shown.")
 	}

@@ -211,7 +211,7 @@ rules:
 		t.Errorf("tested %v", c.Tested)
 	}
 	g := byTerm(run("constrained", "{free: [g]}"), "g")
-	if g.Wald.OK || g.LR.OK || !strings.Contains(g.Wald.Reason, "are all the columns of a constraint group") {
+	if g.Wald.OK || g.LR.OK || !strings.Contains(g.Wald.Reason, "g.b, g.c make up a whole constraint group") {
 		t.Errorf("g alone in its group: %+v", g)
 	}
 	shared := run("constrained", "{free: [x, w]}")

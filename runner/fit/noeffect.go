@@ -1,7 +1,6 @@
 package fit
 
 import (
-	"errors"
 	"fmt"
 	"slices"
 	"strings"
@@ -25,7 +24,7 @@ import (
 //     test of b_k[1..J-1] = 0 this is (the inverse information transforms
 //     with the parameters);
 //   - several columns that together empty a group of three or more
-//     categories: not testable (ErrUnidentified).
+//     categories: not testable (UnidentifiedError).
 type NoEffect struct {
 	Columns []string
 	Names   []string    // the quantities, e.g. x, x[2], "x[2] = phi[2]*x"
@@ -34,11 +33,17 @@ type NoEffect struct {
 	Linear  bool        // every quantity is a parameter
 }
 
-// ErrUnidentified marks a hypothesis of no effect that has no test with a
+// UnidentifiedError is a hypothesis of no effect that has no test with a
 // chi-square reference: the columns tested are all the columns of a
-// constraint group with more than one column, so without them the group's
-// common factor phi is not identified.
-var ErrUnidentified = errors.New("not identified without the columns")
+// constraint group with more than one column, so without them the
+// group's common factor phi is not identified.
+type UnidentifiedError struct {
+	Group []string // the group's columns
+}
+
+func (e *UnidentifiedError) Error() string {
+	return fmt.Sprintf("%s make up a whole constraint group, whose common factor phi has no meaning without them, so neither the Wald nor the likelihood-ratio statistic has a chi-square reference", strings.Join(e.Group, ", "))
+}
 
 // NoEffectOf writes the hypothesis that cols have no effect in fit r.
 func (r *Result) NoEffectOf(cols []string) (*NoEffect, error) {
@@ -84,7 +89,7 @@ func (r *Result) NoEffectOf(cols []string) (*NoEffect, error) {
 				for _, j := range members {
 					names = append(names, r.Predictors[j])
 				}
-				return nil, fmt.Errorf("%w: %s are all the columns of a constraint group, whose common factor phi has no meaning without them, so neither the Wald nor the likelihood-ratio statistic has a chi-square reference", ErrUnidentified, strings.Join(names, ", "))
+				return nil, &UnidentifiedError{Group: names}
 			}
 			// The only column of its group: b_m = phi_m g at every
 			// boundary, by the delta method (db/dg = phi_m, db/dphi_m = g).
