@@ -6,6 +6,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"strings"
 
 	"ordplan/plan"
 	"ordplan/render"
@@ -92,7 +93,10 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	}
 	res, err := runner.Run(&q, opt)
 	if err != nil {
-		return fail(stderr, fmt.Errorf("rehearsal on simulated data: %w", err))
+		// The simulated file lies in a temporary folder removed on return:
+		// name it as the outputs would have.
+		msg := strings.ReplaceAll(err.Error(), q.Data.Path, simulatedFile+" (not kept: the rehearsal wrote nothing)")
+		return fail(stderr, fmt.Errorf("rehearsal on simulated data: %w", renamedError{msg, err}))
 	}
 	res.Registration = reg
 	res.Simulated = &runner.Simulation{Command: "rehearse", N: rows, Seed: p.Seed, Link: sim.Link.String(), Model: sim.GeneratingModel(), File: simulatedFile, Truth: sim.Truth()}
@@ -129,3 +133,13 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	fmt.Fprintf(stdout, "report: %s\n", filepath.Join(dir, "report.html"))
 	return exitOK
 }
+
+// renamedError is err with another text (a temporary path named as the
+// user knows it), keeping err for errors.As.
+type renamedError struct {
+	msg string
+	err error
+}
+
+func (e renamedError) Error() string { return e.msg }
+func (e renamedError) Unwrap() error { return e.err }

@@ -145,3 +145,29 @@ func TestRehearseImputes(t *testing.T) {
 		t.Errorf("power.json: replicates failed: %s", b)
 	}
 }
+
+// A rehearsal or a replicate that the plan cannot be run on (so many
+// missing values that a category is left without rows) names the
+// simulated data as the user knows them, never the temporary file they
+// were read from.
+func TestSimulatedFailureNamesNoTemporaryFile(t *testing.T) {
+	dir := t.TempDir()
+	src := strings.NewReplacer("  missing: impute\n", "  missing: drop\n", "  imputation: {sets: 3, iterations: 3, write_sets: true}\n", "",
+		"z: {proportion: 0.3, given: {y: 1.0}}", "z: {proportion: 0.9, given: {y: 6}}").Replace(imputingPlan)
+	planPath := filepath.Join(dir, "plan.yaml")
+	if err := os.WriteFile(planPath, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	_, errs, code := runCLI("rehearse", planPath, "--n", "30", "--quiet", "--out", filepath.Join(dir, "reh"))
+	if code != 1 || !strings.Contains(errs, "ordplan: rehearsal on simulated data: simulated-data.csv (not kept: the rehearsal wrote nothing): column \"y\": only one category") || strings.Contains(errs, "ordplan-rehearse-") {
+		t.Errorf("rehearse: exit %d: %s", code, errs)
+	}
+	pout := filepath.Join(dir, "pow")
+	if _, errs, code := runCLI("power", planPath, "--n", "30", "--replicates", "2", "--quiet", "--out", pout); code != 0 {
+		t.Fatalf("power: exit %d: %s", code, errs)
+	}
+	pm, _ := os.ReadFile(filepath.Join(pout, "power.md"))
+	if !strings.Contains(string(pm), "At n = 30 the first failed replicate said: simulated n=30 replicate 1: column \"y\": only one category") || strings.Contains(string(pm), "ordplan-power-") {
+		t.Errorf("power.md:\n%s", pm)
+	}
+}

@@ -10,6 +10,7 @@ import (
 	"slices"
 	"sort"
 	"strconv"
+	"strings"
 	"sync"
 
 	"ordplan/plan"
@@ -217,7 +218,8 @@ func runReplicate(p *plan.Plan, sim *Sim, n, r int, path string, opt PowerOption
 		return replicate{err: err.Error()}
 	}
 	q := *p
-	q.Data.SetFile(fmt.Sprintf("simulated n=%d replicate %d", n, r+1), path)
+	name := fmt.Sprintf("simulated n=%d replicate %d", n, r+1)
+	q.Data.SetFile(name, path)
 	run := opt.Run
 	if run == nil {
 		run = func(q *plan.Plan) (*runner.Result, error) {
@@ -226,7 +228,9 @@ func runReplicate(p *plan.Plan, sim *Sim, n, r int, path string, opt PowerOption
 	}
 	res, err := run(&q)
 	if err != nil {
-		return replicate{err: err.Error()}
+		// The replicate's temporary file is gone when the report is read:
+		// name the replicate instead.
+		return replicate{err: strings.ReplaceAll(err.Error(), path, name)}
 	}
 	var out replicate
 	for _, or := range res.Outcomes {
