@@ -1,0 +1,94 @@
+package render
+
+import (
+	"bytes"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"ordplan/internal/jsonkeys"
+)
+
+// levelPairsData is an invented survey (seeded generator): 400 rows, a
+// four-level site whose levels have characters Markdown and CSV give a
+// meaning to, a numeric x, and a three-category outcome of a cumulative
+// logit with site effects 0, 0.4, -0.3, 0.8 and slope 0.5.
+func levelPairsData() string {
+	rng := rand.New(rand.NewPCG(20261204, 43))
+	sites := []string{"north", "a|b", "*star*", "c,d"}
+	eff := []float64{0, 0.4, -0.3, 0.8}
+	var b strings.Builder
+	b.WriteString("y,site,x\n")
+	for i := 0; i < 400; i++ {
+		s := i % 4
+		x := rng.NormFloat64()
+		u := rng.Float64()
+		z := eff[s] + 0.5*x + math.Log(u/(1-u))
+		y := 1
+		if z > -0.7 {
+			y = 2
+		}
+		if z > 0.9 {
+			y = 3
+		}
+		fmt.Fprintf(&b, "%d,\"%s\",%.4f\n", y, sites[s], x)
+	}
+	return b.String()
+}
+
+// The report of inference.level_pairs: its section with both tables and
+// the adjusted p-values, the methods sentence, table-level-pairs-*.csv,
+// decisions.json's snake_case keys, level names shown as written, and the
+// same bytes from a second run.
+func TestLevelPairsReport(t *testing.T) {
+	dir := t.TempDir()
+	if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(levelPairsData()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	src := `version: 1
+title: pairs
+data: {file: d.csv}
+outcomes: [{column: y, categories: ["1", "2", "3"]}]
+categorical:
+  site: {levels: [north, "a|b", "*star*", "c,d"]}
+predictors: [site, x]
+models: {approaches: [cumulative], effects: [parallel], links: [logit]}
+rules:
+  - choose: {by: aic}
+inference:
+  level_pairs: {predictors: [site], multiplicity: benjamini_hochberg}
+`
+	files := renderSource(t, dir, src, 0)
+	md := string(files["report.md"])
+	hasAll(t, "report.md", md,
+		"### Pairs of levels of site",
+		"Every pair of the 4 levels of site (6 pairs)",
+		`| \*star\* to c,d | 3 |`,
+		`| a\|b to \*star\* | 1 |`,
+		"| Change | Category | Difference | Std. error | z | p | p, Benjamini-Hochberg | 95% low | 95% high |",
+		"| c,d against \\*star\\* | every boundary |",
+		"Benjamini-Hochberg step-up correction (false discovery rate), within the pairs for one category",
+		"Every pair of levels of site (6 pairs) was compared in the chosen model",
+		"are not effects of changing a unit's level")
+	csv := string(files["table-level-pairs-y.csv"])
+	hasAll(t, "table-level-pairs-y.csv", csv,
+		"predictor,kind,change,category,boundary,estimate,std_error,z,p,adjusted_p,adjustment,low_95,high_95,df\n",
+		`site,average_marginal_effect,north to a|b,1,`,
+		`site,odds_ratio,"c,d against *star*",,0,`)
+	if n := strings.Count(csv, "\n"); n != 1+18+6 {
+		t.Errorf("table-level-pairs-y.csv has %d lines, want 25", n)
+	}
+	if bad, err := jsonkeys.NotSnakeCase(files["decisions.json"], "estimates", "std_errors", "slopes", "final_verdicts", "phi"); err != nil || len(bad) > 0 {
+		t.Errorf("decisions.json keys not in snake_case: %v %v", bad, err)
+	}
+	again := renderSource(t, dir, src, 2)
+	for name, b := range files {
+		if !bytes.Equal(b, again[name]) {
+			t.Errorf("%s differs between two runs", name)
+		}
+	}
+}
