@@ -359,6 +359,6 @@ func termTestsMethods(or *runner.OutcomeResult, sampling bool, c *citer) string 
 			s = append(s, fmt.Sprintf("On the imputed data the Wald tests were pooled by the D1 rule %s and the likelihood-ratio tests by the D3 rule %s.", c.cite("d1"), c.cite("d3")))
 		}
 	}
-	s = append(s, "These tests assume the chosen model holds and refer their statistics to large-sample distributions: the Wald and likelihood-ratio statistics can differ in small samples, in large samples they reject for effects too small to matter, and a term associated with the outcome given the others is not thereby a cause of it.")
+	s = append(s, "These tests assume the chosen model holds and refer their statistics to large-sample distributions: the Wald and likelihood-ratio statistics can differ in small samples, in large samples they reject for effects too small to matter, and a term associated with the outcome given the others is not thereby a cause of it; their p-values were not corrected for the number of terms tested.")
 	return strings.Join(s, " ")
 }

@@ -125,16 +125,7 @@ func TestTermTestsLargeSample(t *testing.T) {
 	}
 	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
 	for _, effects := range []string{"parallel", "nonparallel"} {
-		p := planIn(t, dir, `version: 1
-data: {file: d.csv}
-outcomes: [{column: y}]
-categorical: {g: {levels: [a, b, c]}}
-predictors: [x, g]
-models: {approaches: [cumulative], effects: [`+effects+`]}
-tests: {parallel_lines: []}
-rules:
-  - choose: {by: aic}
-`)
+		p := planIn(t, dir, xgPlan("{file: d.csv}", effects, "aic"))
 		or := runPlan(t, p, 0).Outcomes[0]
 		per := map[string]int{"parallel": 1, "nonparallel": 3}[effects]
 		for _, tt := range or.TermTests {
@@ -276,16 +267,7 @@ func TestPooledTermTestsAgainstMitml(t *testing.T) {
 	os.WriteFile(filepath.Join(dir, "orig.csv"), []byte(orig.String()), 0o644)
 	os.WriteFile(filepath.Join(dir, "stacked.csv"), []byte(stacked.String()), 0o644)
 	os.WriteFile(filepath.Join(dir, "m.txt"), []byte(fmt.Sprintln(m)), 0o644)
-	or := runPlan(t, planIn(t, dir, `version: 1
-data: {file: orig.csv, imputed: {file: stacked.csv, column: imp}}
-outcomes: [{column: y}]
-categorical: {g: {levels: [a, b, c]}}
-predictors: [x, g]
-models: {approaches: [cumulative], effects: [parallel]}
-tests: {parallel_lines: []}
-rules:
-  - choose: {by: aic}
-`), 0).Outcomes[0]
+	or := runPlan(t, planIn(t, dir, xgPlan("{file: orig.csv, imputed: {file: stacked.csv, column: imp}}", "parallel", "aic")), 0).Outcomes[0]
 	if or.Imputed == nil || len(or.TermTests) != 2 {
 		t.Fatalf("term tests on imputed data: %+v", or.TermTests)
 	}
@@ -328,16 +310,7 @@ func TestTermTestsSamplingWeights(t *testing.T) {
 		fmt.Fprintf(&b, "%d,%.5f,%s,%.3f\n", y, x, []string{"a", "b", "c"}[g], 0.5+rng.Float64())
 	}
 	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
-	or := runPlan(t, planIn(t, dir, `version: 1
-data: {file: d.csv, weights: w, weight_kind: sampling}
-outcomes: [{column: y}]
-categorical: {g: {levels: [a, b, c]}}
-predictors: [x, g]
-models: {approaches: [cumulative], effects: [parallel]}
-tests: {parallel_lines: []}
-rules:
-  - choose: {by: tic}
-`), 0).Outcomes[0]
+	or := runPlan(t, planIn(t, dir, xgPlan("{file: d.csv, weights: w, weight_kind: sampling}", "parallel", "tic")), 0).Outcomes[0]
 	if len(or.TermTests) != 2 {
 		t.Fatalf("%+v", or.TermTests)
 	}
@@ -346,4 +319,20 @@ rules:
 			t.Errorf("%s: %+v", tt.Term, tt)
 		}
 	}
+}
+
+// xgPlan is the plan of the invented data of these tests: outcome y,
+// predictors x and g (levels a, b, c), the cumulative logit model with
+// the effect structure effects, chosen by the criterion by.
+func xgPlan(data, effects, by string) string {
+	return `version: 1
+data: ` + data + `
+outcomes: [{column: y}]
+categorical: {g: {levels: [a, b, c]}}
+predictors: [x, g]
+models: {approaches: [cumulative], effects: [` + effects + `]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: ` + by + `}
+`
 }
