@@ -40,7 +40,7 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	if pooled {
 		d.p("On imputed data the Wald test is pooled over the sets by D1 and the likelihood-ratio test by D3 (each set's statistic at its own estimates and at the pooled ones); both are F statistics on the degrees of freedom shown.")
 	}
-	d.p("The two tests rest on the same large-sample theory and agree closely in large samples; in small samples, or when an effect is large, they can differ, and the likelihood ratio is then usually preferred (it does not depend on how the model is parameterized; the Wald test does). With many observations both reject for effects too small to matter: read them with the estimates. A small p-value says the term is associated with the outcome given the other terms, not that it causes it. The p-values are not corrected for the number of terms tested (the plan's inference.multiplicity applies to its hypotheses only).")
+	d.p("The two tests rest on the same large-sample theory and agree closely in large samples; in small samples, or when an effect is large, they can differ, and the likelihood ratio is then usually preferred (it does not depend on how the model is parameterized; the Wald test does). With many observations both reject for effects too small to matter: read them with the estimates. A small p-value says the term is associated with the outcome given the other terms, not that it causes it. The p-values are not corrected for the number of terms tested (the plan's `inference.multiplicity` applies to its hypotheses only).")
 }
 
 // termStatistic is a term test's statistic and p-value for the table, or
