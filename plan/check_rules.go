@@ -72,7 +72,7 @@ func (d *decoder) checkRules(p *Plan) {
 					case !slices.Contains(p.SourceColumns(), ax.Predictor):
 						d.errAt(key, "%s is not a column the predictors read (%s)", quote(ax.Predictor), strings.Join(p.SourceColumns(), ", "))
 					case p.categorical(ax.Predictor) != nil:
-						d.errAt(key, "%s is categorical; the grid takes numeric columns (categorical ones are held at their reference level)", quote(ax.Predictor))
+						d.errAt(key, "%s", gridCategorical(ax.Predictor))
 					}
 				}
 			}

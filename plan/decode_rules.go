@@ -1,6 +1,7 @@
 package plan
 
 import (
+	"fmt"
 	"slices"
 	"strings"
 
@@ -117,9 +118,10 @@ func (d *decoder) decodeRule(n *yaml.Node, path string) Rule {
 			r.MaxCondition = f
 		}
 		if mv := m.get("min_starts_agreeing"); mv != nil {
-			if n, ok := d.integer(mv, m.at("min_starts_agreeing")); ok {
+			const want = "a whole number from 1 to 1000"
+			if n, ok := d.integerWant(mv, m.at("min_starts_agreeing"), want); ok {
 				if n < 1 || n > 1000 {
-					d.errorf(deref(mv), m.at("min_starts_agreeing"), "%d is out of range (want a whole number from 1 to 1000)", n)
+					d.errorf(deref(mv), m.at("min_starts_agreeing"), "%d is out of range (want %s)", n, want)
 				} else {
 					r.MinStartsAgreeing = int(n)
 				}
@@ -177,19 +179,25 @@ func (m *mapping) atLeast(key string, lo float64, strict bool) (float64, bool) {
 	if mv == nil {
 		return 0, false
 	}
-	f, ok := m.d.number(mv, m.at(key))
+	op := ">="
+	if strict {
+		op = ">"
+	}
+	want := fmt.Sprintf("a number %s %v", op, lo)
+	f, ok := m.d.numberWant(mv, m.at(key), want)
 	if !ok {
 		return 0, false
 	}
 	if f < lo || strict && f == lo {
-		op := ">="
-		if strict {
-			op = ">"
-		}
-		m.d.errorf(deref(mv), m.at(key), "%v is out of range (want a number %s %v)", f, op, lo)
+		m.d.errorf(deref(mv), m.at(key), "%v is out of range (want %s)", f, want)
 		return 0, false
 	}
 	return f, true
+}
+
+// gridCategorical says why a categorical column has no place in a grid.
+func gridCategorical(col string) string {
+	return quote(col) + " is declared categorical; the grid gives values of numeric columns only and holds each categorical column at its reference level: remove it from the grid"
 }
 
 // decodeGrid reads a grid of prediction points: a mapping of predictor to
@@ -214,6 +222,10 @@ func (d *decoder) decodeGrid(n *yaml.Node, path string) []GridAxis {
 			continue
 		}
 		seen[k.Value] = true
+		if d.categorical[k.Value] {
+			d.errorf(k, kp, "%s", gridCategorical(k.Value))
+			continue
+		}
 		items, ok := d.list(v, kp)
 		if !ok {
 			continue

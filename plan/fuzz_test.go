@@ -5,6 +5,7 @@ import (
 	"errors"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 )
 
@@ -37,6 +38,9 @@ func CheckParse(t *testing.T, src []byte) {
 		for _, e := range es {
 			if e.File != "f.yaml" || e.Msg == "" {
 				t.Fatalf("malformed error %+v", e)
+			}
+			if (e.Line == 0 || e.Col == 0) && !strings.HasPrefix(e.Msg, "not valid YAML") && !strings.HasPrefix(e.Msg, "plan file is empty") {
+				t.Fatalf("TMPCHECK error without its place: %v\n%s", e, src)
 			}
 		}
 		return

@@ -18,6 +18,9 @@ type decoder struct {
 	// badTerms are the names of predictor terms reported as bad, so that
 	// later checks do not report them again as unknown
 	badTerms []string
+	// categorical are the columns declared under categorical, once read,
+	// for the keys that take numbers of numeric columns only
+	categorical map[string]bool
 }
 
 func newDecoder(file string) *decoder {
@@ -125,8 +128,10 @@ func describe(n *yaml.Node) string {
 			return "number " + clip(n.Value)
 		case "!!bool":
 			return n.Value
+		case "!!timestamp":
+			return "the date " + quote(n.Value)
 		}
-		return n.ShortTag() + " " + quote(n.Value)
+		return quote(n.Value) + " marked as YAML type " + strings.TrimPrefix(n.ShortTag(), "!!")
 	}
 	return "an unsupported YAML node"
 }

@@ -148,6 +148,10 @@ func (d *decoder) decodePlan(root *yaml.Node, p *Plan) {
 	}
 	if v := m.get("categorical"); v != nil {
 		p.Categorical = d.decodeCategorical(v)
+		d.categorical = map[string]bool{}
+		for _, c := range p.Categorical {
+			d.categorical[c.Column] = true
+		}
 	}
 	if v := m.required("predictors"); v != nil && d.nonEmpty(v, "predictors", "predictor") {
 		p.Predictors, p.Terms = d.decodeTerms(v, "predictors")

@@ -81,10 +81,16 @@ func (d *decoder) word(n *yaml.Node, path, what string, words []string) (string,
 
 // integer reads a whole number.
 func (d *decoder) integer(n *yaml.Node, path string) (int64, bool) {
+	return d.integerWant(n, path, "a whole number")
+}
+
+// integerWant reads a whole number, saying "want " + want when the value
+// is not one.
+func (d *decoder) integerWant(n *yaml.Node, path, want string) (int64, bool) {
 	n = deref(n)
 	var v int64
 	if n == nil || n.Kind != yaml.ScalarNode || n.ShortTag() != "!!int" || n.Decode(&v) != nil {
-		d.errorf(n, path, "want a whole number, got %s", describe(n))
+		d.errorf(n, path, "want %s, got %s", want, describe(n))
 		return 0, false
 	}
 	return v, true
@@ -103,10 +109,16 @@ func (d *decoder) unsigned(n *yaml.Node, path string) (uint64, bool) {
 
 // number reads a finite number.
 func (d *decoder) number(n *yaml.Node, path string) (float64, bool) {
+	return d.numberWant(n, path, "a number")
+}
+
+// numberWant reads a finite number, saying "want " + want when the value
+// is not one (want names its range when the key has one).
+func (d *decoder) numberWant(n *yaml.Node, path, want string) (float64, bool) {
 	n = deref(n)
 	var v float64
 	if n == nil || n.Kind != yaml.ScalarNode || (n.ShortTag() != "!!int" && n.ShortTag() != "!!float") || n.Decode(&v) != nil {
-		d.errorf(n, path, "want a number, got %s", describe(n))
+		d.errorf(n, path, "want %s, got %s", want, describe(n))
 		return 0, false
 	}
 	if math.IsNaN(v) || math.IsInf(v, 0) {
@@ -118,12 +130,13 @@ func (d *decoder) number(n *yaml.Node, path string) (float64, bool) {
 
 // probability reads a number strictly between 0 and 1.
 func (d *decoder) probability(n *yaml.Node, path string) (float64, bool) {
-	v, ok := d.number(n, path)
+	const want = "a number strictly between 0 and 1"
+	v, ok := d.numberWant(n, path, want)
 	if !ok {
 		return 0, false
 	}
 	if v <= 0 || v >= 1 {
-		d.errorf(deref(n), path, "%v is out of range (want a number strictly between 0 and 1)", v)
+		d.errorf(deref(n), path, "%v is out of range (want %s)", v, want)
 		return 0, false
 	}
 	return v, true

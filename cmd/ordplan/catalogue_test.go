@@ -564,7 +564,7 @@ func catalogue(dir string) (items []badInput) {
 		{id: "P3", name: "wrong type: a number for a list", args: []string{"check"}, plan: edit("predictors: [a, b]", "predictors: 3"), code: 1,
 			want: []string{`P3.yaml:6:13: predictors: want a list, got number 3`}},
 		{id: "P4", name: "wrong type: text for a number", args: []string{"check"}, plan: edit("{by: aic}", "{by: aic, margin: wide}"), code: 1,
-			want: []string{`P4.yaml:13:31: rules[1].choose.margin: want a number, got string "wide"`}},
+			want: []string{`P4.yaml:13:31: rules[1].choose.margin: want a number >= 0, got string "wide"`}},
 		{id: "P5", name: "wrong type: text for true or false", args: []string{"check"}, plan: goodPlan + "report: {timestamp: yes}\n", code: 1,
 			want: []string{`P5.yaml:14:21: report.timestamp: want true or false, got string "yes"`}},
 		{id: "P6", name: "missing required key", args: []string{"check"}, plan: edit("outcomes:\n  - column: y\n", ""), code: 1,
@@ -616,6 +616,11 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{"/dev/zero: is not a regular file (a named pipe, a device or a folder): give the plan as a file"}},
 		{id: "P32", name: "plan file over 4 MB", args: []string{"check", d("huge.yaml")}, code: 1,
 			want: []string{"huge.yaml: has 4194305 bytes; a plan is a short text file of at most 4194304 bytes"}},
+		{id: "P40", name: "a YAML date where a number is needed", args: []string{"check"}, plan: edit("{by: aic}", "{by: aic, margin: 2024-01-01}"), code: 1,
+			want: []string{`P40.yaml:13:31: rules[1].choose.margin: want a number >= 0, got the date "2024-01-01"`}},
+		{id: "P41", name: "a grid naming a categorical column", args: []string{"check"},
+			plan: edit("predictors: [a, b]", "categorical:\n  b: {levels: [\"0\", \"1\"]}\npredictors: [a, b]", "reject_unconverged: true", "reject_if_simpler_is_close: {max_difference: 0.05, grid: {b: [1]}}"), code: 1,
+			want: []string{`P41.yaml:14:63: rules[0].reject_if_simpler_is_close.grid.b: "b" is declared categorical; the grid gives values of numeric columns only and holds each categorical column at its reference level: remove it from the grid`}},
 
 		// Multiply imputed data.
 		{id: "I1", name: "imputation numbers with a gap", args: []string{"run"}, setup: imputedFiles,
