@@ -50,6 +50,8 @@ func writeOverallFit(d *doc, or *runner.OutcomeResult) {
 		row := []string{model, numfmt.Fixed(o.NullLogLik, 3)}
 		if o.LR.OK {
 			row = append(row, numfmt.Stat(o.LR.Chi2), fmt.Sprint(o.LR.DF), numfmt.PValue(o.LR.P))
+		} else if o.LR.Negative {
+			row = append(row, numfmt.Stat(o.LR.Chi2), fmt.Sprint(o.LR.DF), "none (below the table)")
 		} else {
 			row = append(row, "not a test", "", "")
 		}
@@ -58,9 +60,14 @@ func writeOverallFit(d *doc, or *runner.OutcomeResult) {
 	}
 	d.captioned("Overall fit: each candidate against its thresholds-only model (LL₀ its log-likelihood), and pseudo-R²").table([]string{"Model", "LL₀", "LR chi-square", "df", "p", "McFadden", "Cox-Snell", "Nagelkerke", "McKelvey-Zavoina"}, rows)
 	for _, o := range or.Overall {
-		if !o.LR.OK && o.LR.Reason != "" {
+		if !o.LR.OK && !o.LR.Negative && o.LR.Reason != "" {
 			d.p("The likelihood-ratio statistics are not tests here: %s.", o.LR.Reason)
 			break
+		}
+	}
+	for _, o := range or.Overall {
+		if o.LR.Negative {
+			d.p("%s against its thresholds-only model: %s.", o.Model, o.LR.Reason)
 		}
 	}
 }

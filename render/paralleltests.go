@@ -48,6 +48,9 @@ func writeTests(d *doc, or *runner.OutcomeResult) {
 }
 
 func testRow(label string, t fit.Test) []string {
+	if t.Negative { // the statistic shown, with why it has no p-value
+		return []string{label, numfmt.Stat(t.Chi2), fmt.Sprint(t.DF), t.Reason}
+	}
 	if !t.OK {
 		return []string{label, "", "", "not computed: " + t.Reason}
 	}

@@ -81,7 +81,7 @@ func runFitStats(a *Analysis, or *OutcomeResult) {
 // is not a test and says so.
 func overallFit(d *fit.Data, r, null *fit.Result, sampling bool) fit.Overall {
 	o := fit.OverallFit(d, r, null)
-	if sampling && o.LR.OK {
+	if sampling && (o.LR.OK || o.LR.Negative) {
 		o.LR = fit.Test{Name: o.LR.Name, Reason: likelihoodNote}
 	}
 	return o

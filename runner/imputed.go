@@ -518,6 +518,45 @@ func pooledLR(or *OutcomeResult, perSet [][]*FitEntry, r, f *FitEntry) fit.Test 
 	return pooledLROf(or.Imputed.Sets, or.Imputed.Sets, r.Result, f.Result, rs, fs)
 }
 
+// setLR is the likelihood-ratio statistic of r within f on imputed set s
+// (0-based), or why it has none: clearly negative (fit.LRStatistic), which
+// D3 would otherwise pool as if it were a statistic.
+func setLR(s int, r, f *fit.Result) (float64, string) {
+	x, ok := fit.LRStatistic(r.LogLik, f.LogLik)
+	if !ok {
+		return x, fmt.Sprintf("in imputed set %d %s", s+1, fit.NegativeLR(x, r.LogLik, f.LogLik, r.Name, f.Name))
+	}
+	return x, ""
+}
+
+// negativeTest is a pooled likelihood-ratio test of r within f with no
+// p-value for a statistic below zero (fit.Test.Negative), why saying
+// which.
+func negativeTest(why string, r, f *fit.Result) fit.Test {
+	t := missingTest(fit.TestLR, why)
+	t.Negative, t.P = true, math.NaN()
+	t.LLRestricted, t.LLFull = r.LogLik, f.LogLik
+	return t
+}
+
+// negativeAtPooled says why D3 has no p-value when the likelihood-ratio
+// statistics at the pooled estimates (at) average clearly below zero
+// (beyond tol, the largest tolerance of the sets' own statistics): the
+// pooled estimates of the larger model fit the sets worse than the
+// smaller model's, and an F statistic below zero would read as p = 1.
+// "" when they do not.
+func negativeAtPooled(at []float64, tol float64, larger, smaller string) string {
+	mean := 0.0
+	for _, x := range at {
+		mean += x / float64(len(at))
+	}
+	if mean >= -tol {
+		return ""
+	}
+	return fmt.Sprintf("the likelihood-ratio statistics at the pooled estimates average %s, below zero by more than the fits' convergence tolerance allows (%.2g): the %s model's pooled estimates fit the imputed sets worse than the %s model's; no p-value",
+		strconv.FormatFloat(mean, 'g', 6, 64), tol, larger, smaller)
+}
+
 // pooledLROf is the D3 test of the pooled fit r within the pooled fit f,
 // with their fits rs and fs on each of the imputed sets: f's input on
 // set k is sets[k], r's rsets[k] (the same, or the same rows without
@@ -528,8 +567,13 @@ func pooledLROf(sets, rsets []*fit.Data, r, f *fit.Result, rs, fs []*fit.Result)
 		return missingTest(fit.TestLR, "the models are not nested")
 	}
 	own, at := make([]float64, len(sets)), make([]float64, len(sets))
+	tol := 0.0
 	for s, d := range sets {
-		own[s] = 2 * (fs[s].LogLik - rs[s].LogLik)
+		var why string
+		if own[s], why = setLR(s, rs[s], fs[s]); why != "" {
+			return negativeTest(why, r, f)
+		}
+		tol = max(tol, fit.LRTolerance(rs[s].LogLik, fs[s].LogLik))
 		lf, err := fit.PartitionSums(d, f.Model, f.Estimates, 0)
 		if err != nil || lf.Bad {
 			return missingTest(fit.TestLR, fmt.Sprintf("the full model cannot be evaluated at its pooled estimates in imputed set %d", s+1))
@@ -539,6 +583,9 @@ func pooledLROf(sets, rsets []*fit.Data, r, f *fit.Result, rs, fs []*fit.Result)
 			return missingTest(fit.TestLR, fmt.Sprintf("the restricted model cannot be evaluated at its pooled estimates in imputed set %d", s+1))
 		}
 		at[s] = 2 * (lf.LogLik - lr.LogLik)
+	}
+	if why := negativeAtPooled(at, tol, "larger", "smaller"); why != "" {
+		return negativeTest(why, r, f)
 	}
 	t, err := impute.D3(own, at, k)
 	if err != nil {

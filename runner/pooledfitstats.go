@@ -53,7 +53,7 @@ func runPooledFitStats(a *Analysis, or *OutcomeResult) {
 			or.Nulls = append(or.Nulls, n.rec)
 		}
 		o := pooledOverall(or, f, n.per, n.mean)
-		if a.Errors.Sampling && o.LR.OK {
+		if a.Errors.Sampling && (o.LR.OK || o.LR.Negative) {
 			o.LR = fit.Test{Name: o.LR.Name, Reason: likelihoodNote}
 		}
 		or.Overall = append(or.Overall, OverallRecord{Model: f.ID, Null: key, Overall: o})
@@ -76,6 +76,7 @@ func pooledOverall(or *OutcomeResult, f *FitEntry, nulls []*fit.Result, nullMean
 	m := float64(len(im.Sets))
 	fits := or.perSetOf(f)
 	own, at := make([]float64, len(im.Sets)), make([]float64, len(im.Sets))
+	tol, negative := 0.0, ""
 	o.NullLogLik, o.McFadden, o.CoxSnell, o.Nagelkerke, o.McKelveyZavoina = 0, 0, 0, 0, 0
 	for k, d := range im.Sets {
 		ok := fit.OverallFit(d, fits[k].Result, nulls[k])
@@ -87,7 +88,11 @@ func pooledOverall(or *OutcomeResult, f *FitEntry, nulls []*fit.Result, nullMean
 		if k == 0 {
 			o.MZNote = ok.MZNote
 		}
-		own[k] = 2 * (fits[k].Result.LogLik - nulls[k].LogLik)
+		var why string
+		if own[k], why = setLR(k, nulls[k], fits[k].Result); why != "" && negative == "" {
+			negative = why // the measures are averaged all the same
+		}
+		tol = max(tol, fit.LRTolerance(nulls[k].LogLik, fits[k].Result.LogLik))
 		lf, err := fit.PartitionSums(d, f.Result.Model, f.Result.Estimates, 0)
 		if err != nil || lf.Bad {
 			o.LR = missingTest(fit.TestLR, fmt.Sprintf("the model cannot be evaluated at its pooled estimates in imputed set %d", k+1))
@@ -106,6 +111,10 @@ func pooledOverall(or *OutcomeResult, f *FitEntry, nulls []*fit.Result, nullMean
 	df := f.Result.NParams - nulls[0].NParams
 	if df < 1 {
 		o.LR = missingTest(fit.TestLR, "the model has no slope")
+	} else if negative != "" {
+		o.LR = negativeTest(negative, &fit.Result{LogLik: o.NullLogLik}, f.Result)
+	} else if why := negativeAtPooled(at, tol, "fitted", "thresholds-only"); why != "" {
+		o.LR = negativeTest(why, &fit.Result{LogLik: o.NullLogLik}, f.Result)
 	} else if t, err := impute.D3(own, at, df); err != nil {
 		o.LR = missingTest(fit.TestLR, err.Error())
 	} else {

@@ -419,6 +419,10 @@ func (env *ruleEnv) judgeTest(r plan.Rule, f *FitEntry) (bool, string) {
 			continue
 		}
 		tt := env.test(r.Test, f, full)
+		if tt.Negative {
+			parts = append(parts, fmt.Sprintf("the %s test against %s: %s", r.Test.Title(), full.ID, tt.Reason))
+			continue
+		}
 		if !tt.OK {
 			parts = append(parts, fmt.Sprintf("the %s test against %s cannot be computed (%s)", r.Test.Title(), full.ID, tt.Reason))
 			continue

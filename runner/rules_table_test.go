@@ -451,3 +451,25 @@ func TestTableUnstable(t *testing.T) {
 		})
 	}
 }
+
+// A likelihood-ratio statistic clearly below zero rejects nothing and is
+// said to have no p-value, in the verdict and in decisions.json (p null,
+// negative true), never p = 1.
+func TestTableTestRuleNegativeStatistic(t *testing.T) {
+	small := &fit.Result{Name: "cumulative/parallel/logit", Status: fit.StatusOK, NParams: 3, LogLik: -50}
+	large := &fit.Result{Name: "cumulative/nonparallel/logit", Status: fit.StatusOK, NParams: 5, LogLik: -52.5}
+	neg := fit.LRTest(small, large)
+	p := handPlan(t, "[parallel, nonparallel]", "  - reject_if_test_rejects: {test: lr, alpha: 0.05}\n  - choose: {by: aic}\n")
+	or := handOutcome([]handFit{threeFits()[0], threeFits()[2]}, []int{0, 1, 2}, []float64{0, 1, 2})
+	env := newRuleEnv(ResolvePlan(p), or)
+	env.test = func(kind fit.TestKind, f, full *FitEntry) fit.Test { return neg }
+	env.apply()
+	wantLines(t, verdictLines(or, 0), []string{
+		"cumulative/parallel/logit: kept: the likelihood-ratio test against cumulative/nonparallel/logit: the statistic is negative (-5): the log-likelihood of cumulative/nonparallel/logit (-52.500000) is below that of cumulative/parallel/logit (-50.000000), which it should nest, by more than the fits' convergence tolerance allows (6.3e-07), so a fit did not reach its maximum or the models are not nested; no p-value",
+		"cumulative/nonparallel/logit: kept: no less constrained model of this approach and link in the grid",
+	})
+	b, err := MarshalStable(neg)
+	if err != nil || !strings.Contains(string(b), `"ok": false`) || !strings.Contains(string(b), `"negative": true`) || !strings.Contains(string(b), `"chi2": -5`) || !strings.Contains(string(b), `"p": null`) {
+		t.Errorf("decisions.json's test: %v\n%s", err, b)
+	}
+}

@@ -3,6 +3,7 @@ package fit
 import (
 	"errors"
 	"fmt"
+	"strconv"
 	"strings"
 
 	"gonum.org/v1/gonum/mat"
@@ -316,10 +317,8 @@ func WolfeGould(d *Data, opt Options) Test {
 	if err != nil {
 		return failedTest(TestWolfeGould.String(), "%v", err)
 	}
-	t := chi2Test(TestWolfeGould.String(), 2*(llnp-llp), K*(d.J-2))
-	if t.Chi2 < 0 {
-		t.P = 1
-	}
-	t.LLRestricted, t.LLFull = llp, llnp
-	return t
+	return lrChi2Test(TestWolfeGould.String(), llp, llnp, K*(d.J-2), func(x float64) string {
+		return fmt.Sprintf("the statistic is negative (%s): the cumulative log-likelihood the separate binary logits imply (%.6f) is below the one the parallel binary logits imply (%.6f) by more than the fits' convergence tolerance allows (%.2g), so the approximation the test rests on fails for these data; no p-value (the likelihood-ratio test compares the fitted models themselves)",
+			strconv.FormatFloat(x, 'g', 6, 64), llnp, llp, LRTolerance(llp, llnp))
+	})
 }

@@ -3,6 +3,7 @@ package fit
 import (
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 
 	"ordplan/internal/words"
@@ -84,6 +85,10 @@ type Test struct {
 	Chi2   float64 `json:"chi2"`
 	DF     int     `json:"df"`
 	P      float64 `json:"p"`
+	// Negative says a likelihood-ratio type statistic came out below zero
+	// beyond the fits' convergence tolerance (LRTolerance): OK is false,
+	// Chi2 holds the statistic, P is NaN and Reason says what it means.
+	Negative bool `json:"negative,omitempty"`
 	// Log-likelihoods of the two models (likelihood-ratio type tests).
 	LLRestricted float64 `json:"ll_restricted,omitempty"`
 	LLFull       float64 `json:"ll_full,omitempty"`
@@ -136,8 +141,54 @@ func LRTest(restricted, full *Result) Test {
 	if df <= 0 {
 		return failedTest(TestLR.String(), "%s does not have more parameters than %s", full.Name, restricted.Name)
 	}
-	t := chi2Test(TestLR.String(), 2*(full.LogLik-restricted.LogLik), df)
-	t.LLRestricted, t.LLFull = restricted.LogLik, full.LogLik
+	return lrChi2Test(TestLR.String(), restricted.LogLik, full.LogLik, df, func(x float64) string {
+		return NegativeLR(x, restricted.LogLik, full.LogLik, restricted.Name, full.Name)
+	})
+}
+
+// LRTolerance is how far below zero a likelihood-ratio statistic
+// 2 (llFull - llRestricted) of two converged fits may come from their
+// stopping short of their maxima: a converged fit is within half its last
+// Newton decrement of its maximum, which the stopping rules bound by
+// 1e-8 |LL| at the loosest (a log-likelihood flat to working precision)
+// and by maximumDecrement for a fit asked for its maximum alone; the
+// statistic, twice the difference, takes twice the shortfall of one fit:
+// maximumDecrement + 1e-8 max(1, |LL|). A statistic in [-LRTolerance, 0)
+// is 0 (p = 1); below that the fits are not at their maxima or not nested.
+func LRTolerance(llRestricted, llFull float64) float64 {
+	return maximumDecrement + 1e-8*math.Max(1, math.Max(math.Abs(llRestricted), math.Abs(llFull)))
+}
+
+// LRStatistic is 2 (llFull - llRestricted), 0 when it is below zero by no
+// more than LRTolerance; ok is false when it is further below zero.
+func LRStatistic(llRestricted, llFull float64) (x float64, ok bool) {
+	x = 2 * (llFull - llRestricted)
+	if x < 0 && -x <= LRTolerance(llRestricted, llFull) {
+		return 0, true
+	}
+	return x, !(x < 0)
+}
+
+// NegativeLR says what a clearly negative likelihood-ratio statistic x
+// means, the larger model (full) having the smaller log-likelihood.
+func NegativeLR(x, llRestricted, llFull float64, restricted, full string) string {
+	return fmt.Sprintf("the statistic is negative (%s): the log-likelihood of %s (%.6f) is below that of %s (%.6f), which it should nest, by more than the fits' convergence tolerance allows (%.2g), so a fit did not reach its maximum or the models are not nested; no p-value",
+		strconv.FormatFloat(x, 'g', 6, 64), full, llFull, restricted, llRestricted, LRTolerance(llRestricted, llFull))
+}
+
+// lrChi2Test is the chi-square test of the likelihood-ratio statistic of
+// two log-likelihoods with df degrees of freedom; a clearly negative
+// statistic gives no p-value (P is NaN) but the reason negative(x) gives,
+// with the statistic and both log-likelihoods kept.
+func lrChi2Test(name string, llRestricted, llFull float64, df int, negative func(x float64) string) Test {
+	x, ok := LRStatistic(llRestricted, llFull)
+	var t Test
+	if ok {
+		t = chi2Test(name, x, df)
+	} else {
+		t = Test{Name: name, Reason: negative(x), Chi2: x, DF: df, P: math.NaN(), Negative: true}
+	}
+	t.LLRestricted, t.LLFull = llRestricted, llFull
 	return t
 }
 

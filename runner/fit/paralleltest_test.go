@@ -201,3 +201,30 @@ func TestParallelLinesStageAdjacent(t *testing.T) {
 		})
 	}
 }
+
+// A likelihood-ratio statistic below zero: within the fits' convergence
+// tolerance it is 0 (p = 1); clearly below it, the larger model's fit did
+// not reach its maximum (here made so by hand) or the models are not
+// nested, and the test says so with no p-value rather than p = 1.
+func TestLRNegativeStatistic(t *testing.T) {
+	small := &Result{Name: "cumulative/parallel/logit", Status: StatusOK, NParams: 4, LogLik: -812.25}
+	large := &Result{Name: "cumulative/nonparallel/logit", Status: StatusOK, NParams: 6}
+	tol := LRTolerance(-812.25, -812.25)
+	if want := 1e-7 + 1e-8*812.25; math.Abs(tol-want) > 1e-20 {
+		t.Errorf("tolerance %g, want %g", tol, want)
+	}
+	large.LogLik = small.LogLik - 0.4*tol // statistic -0.8 tol: rounding
+	if tt := LRTest(small, large); !tt.OK || tt.Negative || tt.Chi2 != 0 || tt.P != 1 || tt.DF != 2 {
+		t.Errorf("within the tolerance: %+v", tt)
+	}
+	large.LogLik = small.LogLik - 1.5 // statistic -3
+	tt := LRTest(small, large)
+	want := "the statistic is negative (-3): the log-likelihood of cumulative/nonparallel/logit (-813.750000) is below that of cumulative/parallel/logit (-812.250000), which it should nest, by more than the fits' convergence tolerance allows (8.2e-06), so a fit did not reach its maximum or the models are not nested; no p-value"
+	if tt.OK || !tt.Negative || tt.Chi2 != -3 || !math.IsNaN(tt.P) || tt.DF != 2 || tt.Reason != want || tt.LLFull != large.LogLik || tt.LLRestricted != small.LogLik {
+		t.Errorf("clearly negative: %+v\nwant reason %s", tt, want)
+	}
+	large.LogLik = small.LogLik + 1.5
+	if tt := LRTest(small, large); !tt.OK || tt.Negative || tt.Chi2 != 3 || math.Abs(tt.P-math.Exp(-1.5)) > 1e-12 {
+		t.Errorf("positive: %+v (chi2(2) survival at 3 is exp(-1.5))", tt)
+	}
+}
