@@ -43,6 +43,14 @@ func writeChained(d *doc, ch *runner.ChainedRecord, rows int, dz *design.Design,
 		d.p("What the imputation models needed:")
 		d.list(ch.Notes)
 	}
+	if len(ch.Unheld) > 0 {
+		d.p("Imputed values the data cannot hold (counted in the final sets; decisions.json gives the counts per column):")
+		items := make([]string, len(ch.Unheld))
+		for i, u := range ch.Unheld {
+			items[i] = mdText(u)
+		}
+		d.list(items)
+	}
 	if ch.ConvergenceTable {
 		var tr [][]string
 		for _, t := range ch.Trace {

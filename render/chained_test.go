@@ -3,6 +3,7 @@ package render
 import (
 	"encoding/json"
 	"fmt"
+	"math"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
@@ -151,5 +152,53 @@ rules:
 		if got := dec.Outcomes[0].Counts[y-1]; got != float64(counts[y]) {
 			t.Errorf("decisions.json counts[%d] = %g, want the observed %d", y-1, got, counts[y])
 		}
+	}
+}
+
+// TestChainedReportUnheldValues: normal draws outside the range the data
+// dictionary declares (an age below 18) are counted and said in the
+// report's imputation section and in decisions.json, with mean matching
+// suggested; the invented data have many ages near the lower bound.
+func TestChainedReportUnheldValues(t *testing.T) {
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(12, 5))
+	var b strings.Builder
+	b.WriteString("y,age\n")
+	for i := 0; i < 300; i++ {
+		age := 18 + math.Round(72*math.Pow(rng.Float64(), 3))
+		y := 1
+		if rng.Float64() < 1/(1+math.Exp(1.5-0.04*age)) {
+			y = 2
+		}
+		if rng.Float64() < 0.3 {
+			y++
+		}
+		if rng.Float64() < 0.25 {
+			fmt.Fprintf(&b, "%d,\n", y)
+		} else {
+			fmt.Fprintf(&b, "%d,%g\n", y, age)
+		}
+	}
+	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
+	src := `version: 1
+title: normal draws
+seed: 5
+data: {file: d.csv, missing: impute, imputation: {sets: 3, iterations: 2, column_models: {age: normal_draw}}}
+outcomes: [{column: y}]
+predictors: [age]
+dictionary:
+  age: {range: [18, 90], label: Age}
+models: {approaches: [cumulative], effects: [parallel, nonparallel]}
+tests: {parallel_lines: [lr]}
+rules:
+  - choose: {by: bic}
+`
+	files := renderSource(t, dir, src, 2)
+	md := string(files["report.md"])
+	hasAll(t, "report.md", md,
+		"Imputed values the data cannot hold (counted in the final sets; decisions.json gives the counts per column):",
+		"%) are outside the range [18, 90] the data dictionary declares (dictionary.age): the analysis uses them as drawn; mean_matching, which imputes values observed in the data, keeps every imputed value among them")
+	if !strings.Contains(string(files["decisions.json"]), `"outside_dictionary": `) {
+		t.Errorf("decisions.json lacks the count:\n%s", files["decisions.json"])
 	}
 }

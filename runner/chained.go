@@ -25,14 +25,18 @@ type ChainedRecord struct {
 	Seed       uint64 `json:"seed"`
 	// Stream is the outcome's index: set s draws from the stream
 	// Stream<<32 xor s of the seed.
-	Stream           uint64               `json:"stream"`
-	Donors           int                  `json:"donors"`
-	RowsIncomplete   int                  `json:"rows_incomplete"`
-	Visits           []string             `json:"visits"`
-	Models           []chained.Model      `json:"models"`
-	Trace            []chained.TracePoint `json:"trace"`
-	Notes            []string             `json:"notes,omitempty"`
-	ConvergenceTable bool                 `json:"-"`
+	Stream         uint64               `json:"stream"`
+	Donors         int                  `json:"donors"`
+	RowsIncomplete int                  `json:"rows_incomplete"`
+	Visits         []string             `json:"visits"`
+	Models         []chained.Model      `json:"models"`
+	Trace          []chained.TracePoint `json:"trace"`
+	Notes          []string             `json:"notes,omitempty"`
+	// Unheld says how many imputed values of a numeric column lie outside
+	// what the data dictionary declares or below 0 where no observed value
+	// is (chained.Result.Unheld).
+	Unheld           []string `json:"unheld,omitempty"`
+	ConvergenceTable bool     `json:"-"`
 }
 
 // chainedDonors is the number of donors of predictive mean matching.
@@ -79,7 +83,7 @@ func chainedSets(a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Data
 		return nil, nil, nil, fmt.Errorf("%s: data.imputation.write_sets: the %d imputed sets of outcome %q, %d rows each, would write %d rows, more than the %d ordplan writes into the output folder (the file is made in memory and written with the other outputs, all or nothing): impute fewer sets (data.imputation.sets), or leave write_sets off",
 			a.Source, im.Sets, r.Outcome, ds.N, ds.N*im.Sets, maxWrittenRows)
 	}
-	cols := chainedColumns(im, r, ds)
+	cols := chainedColumns(im, r, ds, a.Declared)
 	stream := uint64(slices.IndexFunc(a.Outcomes, func(o Reading) bool { return o.Outcome == r.Outcome }))
 	cfg := chained.Config{Sets: im.Sets, Iterations: im.Iterations, Seed: im.Seed, Stream: stream, Donors: chainedDonors, Workers: opt.Workers}
 	if ip, ok := opt.Progress.(ImputationProgress); ok {
@@ -100,7 +104,7 @@ func chainedSets(a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Data
 	run := &ImputedRun{M: im.Sets, Source: "chained", Files: []string{a.DataFile}, Rows: ds.N, Sets: fds, Data: sets, observed: observed,
 		Chained: &ChainedRecord{Outcome: r.Outcome, Method: "chained equations", Sets: im.Sets, Iterations: im.Iterations, Seed: im.Seed,
 			Stream: stream, Donors: chainedDonors, RowsIncomplete: ds.Incomplete, Visits: res.Visits, Models: res.Models, Trace: res.Trace,
-			Notes: append(notes, res.Notes...), ConvergenceTable: im.ConvergenceTable}}
+			Notes: append(notes, res.Notes...), Unheld: res.Unheld, ConvergenceTable: im.ConvergenceTable}}
 	if im.WriteSets {
 		run.completed = func() ([]byte, error) { return completedCSV(sets, r) }
 	}
@@ -305,7 +309,7 @@ func setOptions(ds *data.Dataset, o data.Options) data.Options {
 // chainedColumns is the table to impute: the outcome (ordered), the raw
 // columns of the terms (categorical ones as level indexes), and the
 // offset.
-func chainedColumns(im *plan.Imputation, r Reading, ds *data.Dataset) []chained.Column {
+func chainedColumns(im *plan.Imputation, r Reading, ds *data.Dataset, declared map[string]*chained.Bounds) []chained.Column {
 	outcome, spec := r.Outcome, r.Design
 	y := make([]float64, ds.N)
 	for i, v := range ds.Y {
@@ -325,6 +329,8 @@ func chainedColumns(im *plan.Imputation, r Reading, ds *data.Dataset) []chained.
 			if s.Cat.Ordered {
 				c.Kind = chained.Ordered
 			}
+		} else {
+			c.Bounds = declared[s.Name]
 		}
 		cols = append(cols, c)
 	}

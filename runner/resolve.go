@@ -3,11 +3,13 @@ package runner
 import (
 	"errors"
 	"fmt"
+	"strconv"
 
 	"ordplan/plan"
 	"ordplan/runner/data"
 	"ordplan/runner/design"
 	"ordplan/runner/fit"
+	"ordplan/runner/impute/chained"
 )
 
 // Analysis is what running a plan, or `ordplan fit`, needs, resolved once
@@ -30,7 +32,11 @@ type Analysis struct {
 	// (data.missing: impute; nil otherwise).
 	Imputed    *plan.Imputed
 	Imputation *plan.Imputation
-	Outcomes   []Reading
+	// Declared are, when the program imputes (Imputation), the numeric
+	// columns' range or values the data dictionary declares, which the
+	// imputed values are counted against.
+	Declared map[string]*chained.Bounds
+	Outcomes []Reading
 	// Fit are the options of every fit: model-based errors (observed or
 	// expected information) and the workers of one fit.
 	Fit    fit.Options
@@ -138,6 +144,28 @@ func (c CovariancePolicy) Settle(ds *data.Dataset, d *fit.Data, terms []fit.Term
 	}
 }
 
+// declaredBounds are the ranges and values the data dictionary declares
+// for numeric columns (nil when it declares none).
+func declaredBounds(dict []plan.Entry) map[string]*chained.Bounds {
+	var out map[string]*chained.Bounds
+	for _, e := range dict {
+		if e.Range == nil && e.Values == nil {
+			continue
+		}
+		b := &chained.Bounds{Key: e.Key, Range: e.Range}
+		for _, v := range e.Values {
+			if x, err := strconv.ParseFloat(v, 64); err == nil {
+				b.Values = append(b.Values, x)
+			}
+		}
+		if out == nil {
+			out = map[string]*chained.Bounds{}
+		}
+		out[e.Column] = b
+	}
+	return out
+}
+
 // ResolvePlan resolves a validated plan.
 func ResolvePlan(p *plan.Plan) *Analysis {
 	a := &Analysis{Source: p.Path, Plan: true, DataFile: p.Data.Name(), DataPath: p.Data.Path,
@@ -149,6 +177,7 @@ func ResolvePlan(p *plan.Plan) *Analysis {
 	a.Imputed = p.Data.Imputed
 	if p.Data.Imputes() {
 		a.Imputation = p.Data.Imputation
+		a.Declared = declaredBounds(p.Dictionary)
 	}
 	a.Fit = a.Errors.fitOptions(1) // the grid runs its fits in parallel
 	a.Fit.KeepStarts = p.Models.RunEveryStart

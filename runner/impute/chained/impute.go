@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"slices"
+	"strconv"
 	"strings"
 	"sync"
 )
@@ -18,6 +19,30 @@ type Column struct {
 	Levels int // categorical and ordered: the number of levels
 	Values []float64
 	Method Method // Default: DefaultMethod
+	// Bounds, for a numeric column, are what the plan's data dictionary
+	// says it holds (nil: nothing declared); imputed values outside them
+	// are counted, not changed.
+	Bounds *Bounds
+}
+
+// Bounds are the values a numeric column may hold as the plan's data
+// dictionary declares them: a range, or a list of allowed values.
+type Bounds struct {
+	Key    string    // where the dictionary declares them (dictionary.age)
+	Range  []float64 // [min, max], inclusive; nil: any
+	Values []float64 // allowed values; nil: any
+}
+
+// outside reports whether v lies outside the declared range or is not one
+// of the declared values.
+func (b *Bounds) outside(v float64) bool {
+	if b == nil {
+		return false
+	}
+	if b.Range != nil && (v < b.Range[0] || v > b.Range[1]) {
+		return true
+	}
+	return b.Values != nil && !slices.Contains(b.Values, v)
 }
 
 // Config says how many sets to impute and how.
@@ -43,6 +68,14 @@ type Model struct {
 	Method     Method   `json:"method"`
 	Missing    int      `json:"missing"`    // rows imputed
 	Predictors []string `json:"predictors"` // the columns its model reads
+	// Of the Missing x sets values imputed in the final sets (numeric
+	// columns): those outside the range or values the data dictionary
+	// declares, and of the others those below 0 where every observed
+	// value is 0 or more (a count, a duration: a value the data cannot
+	// hold). Mean
+	// matching imputes observed values and gives neither.
+	OutsideDictionary int `json:"outside_dictionary,omitempty"`
+	BelowObservedZero int `json:"below_zero,omitempty"`
 }
 
 // TracePoint summarises one column's imputed values after one iteration:
@@ -64,6 +97,9 @@ type Result struct {
 	Models []Model       `json:"models"` // one per imputed column, in visit order
 	Trace  []TracePoint  `json:"trace"`  // by column (visit order), then iteration
 	Notes  []string      `json:"notes,omitempty"`
+	// Unheld says, per column, how many imputed values the data cannot
+	// hold (Model.OutsideDictionary, Model.BelowObservedZero).
+	Unheld []string `json:"unheld,omitempty"`
 }
 
 // Impute fills the missing values of the columns Sets times. It is an
@@ -89,7 +125,58 @@ func Impute(cols []Column, cfg Config) (*Result, error) {
 	})
 	res.Trace = trace(cols, visits, logs, cfg.Iterations)
 	res.Notes = mergeNotes(cols, visits, logs)
+	for v := range visits {
+		for _, l := range logs {
+			res.Models[v].OutsideDictionary += l.outside[v]
+			res.Models[v].BelowObservedZero += l.negative[v]
+		}
+	}
+	res.Unheld = unheld(cols, visits, res.Models, cfg.Sets)
 	return res, nil
+}
+
+// unheld says, per numeric column, how many of its imputed values lie
+// outside what the data dictionary declares or below 0 where every
+// observed value is 0 or more, and what to do about it.
+func unheld(cols []Column, visits []int, models []Model, sets int) []string {
+	var out []string
+	for v, c := range visits {
+		m := models[v]
+		if m.OutsideDictionary == 0 && m.BelowObservedZero == 0 {
+			continue
+		}
+		col := cols[c]
+		var parts []string
+		if m.OutsideDictionary > 0 {
+			what := fmt.Sprintf("the range [%s, %s]", fmtNum(col.Bounds.Range[0]), fmtNum(col.Bounds.Range[1]))
+			if col.Bounds.Range == nil {
+				vs := make([]string, len(col.Bounds.Values))
+				for i, x := range col.Bounds.Values {
+					vs[i] = fmtNum(x)
+				}
+				what = "the values " + strings.Join(vs, ", ")
+			} else if col.Bounds.Values != nil {
+				what += " or its values"
+			}
+			parts = append(parts, fmt.Sprintf("%d (%s) are outside %s the data dictionary declares (%s)", m.OutsideDictionary, pct(m.OutsideDictionary, m.Missing*sets), what, col.Bounds.Key))
+		}
+		if m.BelowObservedZero > 0 {
+			parts = append(parts, fmt.Sprintf("%d (%s) are below 0, where every observed value is 0 or more", m.BelowObservedZero, pct(m.BelowObservedZero, m.Missing*sets)))
+		}
+		remedy := "the analysis uses them as drawn"
+		if m.Method == NormalDraw {
+			remedy += fmt.Sprintf("; %s, which imputes values observed in the data, keeps every imputed value among them (data.imputation.column_models)", MeanMatching)
+		}
+		out = append(out, fmt.Sprintf("%s: of its %d imputed values (%d in each of the %d sets, by %s), %s: %s", col.Name, m.Missing*sets, m.Missing, sets, m.Method, strings.Join(parts, ", and "), remedy))
+	}
+	return out
+}
+
+func fmtNum(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+
+// pct is k of n as a percentage with one decimal (at least 0.1%).
+func pct(k, n int) string {
+	return strconv.FormatFloat(max(math.Round(1000*float64(k)/float64(n))/10, 0.1), 'f', 1, 64) + "%"
 }
 
 // validate checks the table and the configuration and returns the
@@ -216,6 +303,9 @@ func streamOf(cfg Config, s int) *rand.Rand {
 type setLog struct {
 	mean, sd [][]float64 // [visit][iteration]
 	fallback []fallbacks // [visit]
+	// imputed values of the final iteration outside the declared bounds,
+	// and below 0 where every observed value is at least 0 [visit]
+	outside, negative []int
 }
 
 // fallbacks counts the fits of one column's model that needed help.
@@ -247,7 +337,37 @@ func imputeSet(cols []Column, visits []int, cfg Config, s int) ([][]float64, *se
 			log.mean[v][it], log.sd[v][it] = imputedMoments(cols[c].Values, cur[c])
 		}
 	}
+	log.outside, log.negative = make([]int, len(visits)), make([]int, len(visits))
+	for v, c := range visits {
+		if cols[c].Kind == Numeric {
+			log.outside[v], log.negative[v] = unheldCounts(cols[c], cur[c])
+		}
+	}
 	return cur, log
+}
+
+// unheldCounts counts the imputed values of a numeric column (its
+// missing cells, imputed in cur) outside its declared bounds, and of the
+// others those below 0 when every observed value is 0 or more.
+func unheldCounts(col Column, cur []float64) (outside, negative int) {
+	nonNegative := true
+	for _, v := range col.Values {
+		if v < 0 { // NaN compares false
+			nonNegative = false
+		}
+	}
+	for i, v := range col.Values {
+		if !math.IsNaN(v) {
+			continue
+		}
+		switch {
+		case col.Bounds.outside(cur[i]):
+			outside++
+		case nonNegative && cur[i] < 0:
+			negative++ // not declared otherwise, but no observed value is so
+		}
+	}
+	return outside, negative
 }
 
 // startValues fills each missing cell with a value drawn from the
