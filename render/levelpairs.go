@@ -31,6 +31,7 @@ func pairFamilyText(set runner.LevelPairSet, of string) string {
 // the categorical predictors of the plan's inference.level_pairs.
 func writeLevelPairs(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	level, _ := confidence(r)
+	sampling := r.Analysis != nil && r.Analysis.Errors.Sampling
 	for _, set := range or.LevelPairs {
 		name := mdText(set.Predictor)
 		d.h(3, "Pairs of levels of "+name)
@@ -43,8 +44,11 @@ func writeLevelPairs(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			shown = fmt.Sprintf(" The first %d pairs, from the reference, are the average marginal effects of %s above.", len(set.Levels)-1, name)
 		}
 		d.p("Every pair of the %d levels of %s (%d pairs), in the chosen model. For the pair \"a to b\" the effect is the probability of each category with %s set to b in every row used, less the probability with it set to a, averaged over the %d rows used%s with the other predictors as observed: the difference of the two levels' average marginal effects against the reference level %s, computed on the same rows.%s Standard errors by the delta method on the whole covariance of the model's parameters (the two levels' effects are estimated together and are not independent, so the error of their difference is not that of independent estimates); intervals at %s, symmetric about the effect. %s",
-			len(set.Levels), name, set.Family, name, or.FitData.N(), weightedNote(or, r.Analysis != nil && r.Analysis.Errors.Sampling), mdText(set.Levels[0]), shown, pct(level),
+			len(set.Levels), name, set.Family, name, or.FitData.N(), weightedNote(or, sampling), mdText(set.Levels[0]), shown, pct(level),
 			pairFamilyText(set, "the pairs for one category"))
+		if sampling {
+			d.p("%s", samplingAverageNote)
+		}
 		d.p("These are differences between groups in the fitted association, other predictors as observed: they do not say what moving a unit from one level to the other would change.")
 		writePairEffects(d, or, set, level)
 		writePairOddsRatios(d, or, set, level)
