@@ -151,17 +151,15 @@ func runTermTests(an *Analysis, or *OutcomeResult, opt Options) {
 	}
 	res := or.Chosen.Result
 	out, scopes, refits := startTermTests(an, or, func(ne *fit.NoEffect) fit.Test { return fit.WaldNoEffect(res, ne) })
-	var parts []gridPart
 	for i, e := range refits {
-		if e != nil {
-			parts = append(parts, gridPart{entries: []*FitEntry{e}, target: gridTarget{label: or.Outcome.Column, data: withoutColumns(or.FitData, scopes[i].columns), fit: an.Fit}})
+		if e == nil {
+			continue
 		}
-	}
-	fitGrids(parts, Options{Workers: opt.Workers}) // here: the targets cannot be redone elsewhere
-	for i, e := range refits {
-		if e != nil {
-			out[i].LR = termLR(e, or.Chosen)
-		}
+		// One term at a time, each fit on every worker: one copy of the
+		// data without the term's columns is held at a time. Here: the
+		// target cannot be redone elsewhere.
+		fitGrid([]*FitEntry{e}, gridTarget{label: or.Outcome.Column, data: withoutColumns(or.FitData, scopes[i].columns), fit: an.Fit}, Options{Workers: opt.Workers})
+		out[i].LR = termLR(e, or.Chosen)
 	}
 	or.TermTests = out
 }
@@ -220,31 +218,26 @@ func runPooledTermTests(an *Analysis, or *OutcomeResult, opt Options) {
 	})
 	run := or.Imputed
 	chosen, cerr := or.chosenPerSet()
-	perSet := make([][]*FitEntry, len(refits))
-	sets := make([][]*fit.Data, len(refits))
-	var parts []gridPart
 	for i, e := range refits {
 		if e == nil {
 			continue
 		}
 		if cerr != nil {
 			out[i].LR = missingTest(fit.TestLR, cerr.Error())
-			refits[i] = nil
 			continue
 		}
+		// One term at a time (its refit on every set), as on one data set.
+		var perSet []*FitEntry
+		var sets []*fit.Data
+		var parts []gridPart
 		for k, d := range run.Sets {
 			c := *e
 			sd := withoutColumns(d, scopes[i].columns)
-			perSet[i], sets[i] = append(perSet[i], &c), append(sets[i], sd)
+			perSet, sets = append(perSet, &c), append(sets, sd)
 			parts = append(parts, gridPart{entries: []*FitEntry{&c}, target: gridTarget{label: fmt.Sprintf("%s, imputed set %d/%d", or.Outcome.Column, k+1, run.M), data: sd, fit: an.Fit}})
 		}
-	}
-	fitGrids(parts, Options{Workers: opt.Workers})
-	for i, e := range refits {
-		if e == nil {
-			continue
-		}
-		out[i].LR = pooledTermLR(or, e, perSet[i], sets[i], chosen)
+		fitGrids(parts, Options{Workers: opt.Workers})
+		out[i].LR = pooledTermLR(or, e, perSet, sets, chosen)
 	}
 	or.TermTests = out
 }
