@@ -58,8 +58,8 @@ const (
 
 // Hypothesis is one hypothesis of the plan, with its line.
 type Hypothesis struct {
-	Text string
-	Line int
+	Text      string
+	Line, Col int
 }
 
 // ProfileValue is one predictor value of the profile at which marginal
@@ -99,13 +99,14 @@ func (d *decoder) decodeInference(n *yaml.Node, inf *Inference, dir string) {
 				path := itemPath(m.at("hypotheses"), i)
 				if s, ok := d.text(it, path); ok {
 					// What no model's parameters can mend (syntax,
-					// numbers beyond the largest) is refused here;
-					// whether the names are parameters depends on the
-					// model, and is judged in each.
+					// numbers beyond the largest) is refused here; a
+					// name that no candidate model can have, by
+					// checkHypothesisNames; a name some candidates have
+					// and others not is tested in those that have it.
 					if err := fit.CheckHypothesisText(s); err != nil {
 						d.errorf(deref(it), path, "%v", err)
 					}
-					inf.Hypotheses = append(inf.Hypotheses, Hypothesis{Text: s, Line: deref(it).Line})
+					inf.Hypotheses = append(inf.Hypotheses, Hypothesis{Text: s, Line: deref(it).Line, Col: deref(it).Column})
 				}
 			}
 		}
@@ -258,6 +259,7 @@ func (d *decoder) checkInference(p *Plan) {
 		}
 	}
 	d.checkLevelPairs(p)
+	d.checkHypothesisNames(p)
 	hasProfile := slices.Contains(inf.MarginalEffects, "profile")
 	if hasProfile && len(inf.Profile) == 0 {
 		d.errAt("inference.marginal_effects", "marginal effects at a profile need inference.profile (predictor: value, ...)")

@@ -12,7 +12,8 @@ func CheckData(p *plan.Plan) error {
 		return err
 	}
 	a := ResolvePlan(p)
-	for _, r := range a.Outcomes {
+	var scopes []plan.ParameterScope
+	for i, r := range a.Outcomes {
 		ld, err := a.Load(r)
 		if err != nil {
 			return err
@@ -20,6 +21,7 @@ func CheckData(p *plan.Plan) error {
 		if err := a.CheckDesign(r, ld.Design, ld.FitData); err != nil {
 			return err
 		}
+		scopes = append(scopes, hypothesisScope(p.Outcomes[i].Column, ld.Design, ld.Data.Categories))
 		// The new rows to predict: read through the design as run reads
 		// them after the fits (an undeclared level, a value a
 		// transformation cannot take), so that check finds what run would
@@ -35,5 +37,5 @@ func CheckData(p *plan.Plan) error {
 			}
 		}
 	}
-	return nil
+	return checkHypothesisNames(p, scopes)
 }

@@ -319,9 +319,8 @@ func hypothesisTests(h plan.Hypothesis, or *OutcomeResult, level float64) []Hypo
 func expandTermHypothesis(text string, terms []fit.Term, params []string) string {
 	parts := strings.Split(text, ";")
 	for i, part := range parts {
-		lhs, rhs, ok := strings.Cut(part, "=")
-		name := strings.TrimSpace(lhs)
-		if !ok || strings.TrimSpace(rhs) != "0" || slices.Contains(params, name) {
+		name, ok := fit.WholeTermPart(part)
+		if !ok || slices.Contains(params, name) {
 			continue
 		}
 		for _, t := range terms {

@@ -144,22 +144,31 @@ func adjustHypotheses(an *Analysis, res *Result) {
 		note += fmt.Sprintf("; %d hypothesis test(s) in a chosen model could not be computed and are not in the family", left)
 	}
 	// A hypothesis naming parameters the chosen model does not have is not
-	// tested there, so it is not in the family either: say which.
-	var absent []string
+	// tested there, so it is not in the family either: say which, and
+	// whether another candidate of the outcome tests it.
+	var elsewhere, nowhere []string
 	for _, or := range res.Outcomes {
 		if or.Chosen == nil {
 			continue
 		}
 		for _, h := range an.Inference.Hypotheses {
-			if !slices.ContainsFunc(or.Hypotheses, func(hr HypothesisResult) bool {
-				return hr.Line == h.Line && hr.Text == h.Text && hr.Model == or.Chosen.ID
-			}) {
-				absent = append(absent, fmt.Sprintf("`%s` (plan line %d) in %s", h.Text, h.Line, or.Chosen.ID))
+			same := func(hr HypothesisResult) bool { return hr.Line == h.Line && hr.Text == h.Text }
+			if slices.ContainsFunc(or.Hypotheses, func(hr HypothesisResult) bool { return same(hr) && hr.Model == or.Chosen.ID }) {
+				continue
+			}
+			what := fmt.Sprintf("`%s` (plan line %d) in %s", h.Text, h.Line, or.Chosen.ID)
+			if slices.ContainsFunc(or.Hypotheses, func(hr HypothesisResult) bool { return same(hr) && hr.Model != "" }) {
+				elsewhere = append(elsewhere, what)
+			} else {
+				nowhere = append(nowhere, what)
 			}
 		}
 	}
-	if len(absent) > 0 {
-		note += "; not in the family, since the chosen model has no parameter it names (it is tested only in the other candidates, descriptively): " + strings.Join(absent, ", ")
+	if len(elsewhere) > 0 {
+		note += "; not in the family, since the chosen model does not have every parameter it names (it is tested only in the other candidates that have them, descriptively): " + strings.Join(elsewhere, ", ")
+	}
+	if len(nowhere) > 0 {
+		note += "; not in the family, since no fitted candidate model of the outcome has every parameter it names (those that would have them did not fit, or the names are another outcome's): " + strings.Join(nowhere, ", ")
 	}
 	res.Notes = append(res.Notes, note+".")
 }

@@ -94,17 +94,21 @@ func TestAdjustHypothesesFamily(t *testing.T) {
 
 // A hypothesis of the plan that the chosen model cannot test (it names a
 // parameter that model does not have) is not in the family, and the note
-// says which, where: a reviewer counting the plan's hypotheses must find
-// every one either in the family or named as left out.
+// says which, where, and whether another candidate tests it: a reviewer
+// counting the plan's hypotheses must find every one either in the family
+// or named as left out, with the true reason.
 func TestAdjustHypothesesNamesThoseLeftOut(t *testing.T) {
 	ok := func(p float64) fit.Test { return fit.Test{Name: "wald", OK: true, P: p} }
 	a := &OutcomeResult{Chosen: &FitEntry{ID: "m1"}, Hypotheses: []HypothesisResult{
-		{Text: "h1", Line: 6, Model: "m1", Test: ok(0.01)}, {Text: "x[1] = x[2]", Line: 7, Model: "m2", Test: ok(0.2)}}}
-	p := &plan.Plan{Inference: plan.Inference{Hypotheses: []plan.Hypothesis{{Text: "h1", Line: 6}, {Text: "x[1] = x[2]", Line: 7}}, Multiplicity: plan.MultiplicityHolm}}
+		{Text: "h1", Line: 6, Model: "m1", Test: ok(0.01)}, {Text: "x[1] = x[2]", Line: 7, Model: "m2", Test: ok(0.2)},
+		// Tested nowhere: hypothesisTests gives one result without a model.
+		{Text: "z[1] = 0", Line: 8, Test: fit.Test{Name: "wald", Reason: "no fitted model has the parameters it names"}}}}
+	p := &plan.Plan{Inference: plan.Inference{Hypotheses: []plan.Hypothesis{{Text: "h1", Line: 6}, {Text: "x[1] = x[2]", Line: 7}, {Text: "z[1] = 0", Line: 8}}, Multiplicity: plan.MultiplicityHolm}}
 	res := &Result{Plan: p, Outcomes: []*OutcomeResult{a}}
 	adjustHypotheses(ResolvePlan(p), res)
 	if len(res.Notes) != 1 || !strings.Contains(res.Notes[0], "over a family of 1 tests") ||
-		!strings.Contains(res.Notes[0], "not in the family, since the chosen model has no parameter it names (it is tested only in the other candidates, descriptively): `x[1] = x[2]` (plan line 7) in m1.") {
+		!strings.Contains(res.Notes[0], "not in the family, since the chosen model does not have every parameter it names (it is tested only in the other candidates that have them, descriptively): `x[1] = x[2]` (plan line 7) in m1;") ||
+		!strings.Contains(res.Notes[0], "not in the family, since no fitted candidate model of the outcome has every parameter it names (those that would have them did not fit, or the names are another outcome's): `z[1] = 0` (plan line 8) in m1.") {
 		t.Errorf("notes %q", res.Notes)
 	}
 	if a.Hypotheses[1].Adjusted != nil || a.Hypotheses[0].Adjusted == nil || *a.Hypotheses[0].Adjusted != 0.01 {

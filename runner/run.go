@@ -78,6 +78,13 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 		res.Outcomes = append(res.Outcomes, or)
 	}
 	res.DataHash = dataHash()
+	var scopes []plan.ParameterScope
+	for _, or := range res.Outcomes {
+		scopes = append(scopes, hypothesisScope(or.Outcome.Column, or.Design, or.Data.Categories))
+	}
+	if err := checkHypothesisNames(p, scopes); err != nil {
+		return nil, err
+	}
 	adjustHypotheses(an, res)
 	return res, nil
 }

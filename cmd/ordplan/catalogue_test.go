@@ -876,6 +876,33 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`inference.hypotheses[0]: hypothesis "a = 1e308 + 1e308": "1e308 + 1e308": its numbers add up beyond the largest number (about 1.8e308)`,
 				`inference.hypotheses[1]: hypothesis "a + = 2": a side ends with an operator`,
 				`inference.hypotheses[2]: hypothesis "b = 1e308*a + 1e308*a": "1e308*a + 1e308*a": the coefficients of a add up beyond the largest number (about 1.8e308)`}},
+		{id: "P46", name: "a hypothesis naming a parameter no candidate model can have", args: []string{"check", "--no-data"},
+			plan: edit("  - column: y\n", "  - column: y\n    categories: [1, 2, 3]\n") + "inference:\n  hypotheses:\n    - \"a = 0\"\n    - \"a = bb\"\n    - \"a[3] = 0\"\n    - \"phi[2] = 1\"\n    - \"c = 0\"\n    - \"b[2] = b[1]\"\n  multiplicity: holm\n", code: 1, lines: true,
+			want: []string{`P46.yaml:18:7: inference.hypotheses[1]: "a = bb": "bb" is a parameter of no candidate model (theirs are tau[m] for boundary m, the terms' design columns, COLUMN[m] where a model gives a column one slope per boundary, phi[m] in constrained models; a term of several columns is named as a whole only in TERM = 0); nearest valid names: "b", "a"`,
+				`P46.yaml:19:7: inference.hypotheses[2]: "a[3] = 0": "a[3]" names boundary 3, and no outcome has that many boundaries (y has 2 between its 3 categories); nearest valid names: "a[1]", "a[2]"`,
+				`P46.yaml:20:7: inference.hypotheses[3]: "phi[2] = 1": "phi[2]" names a common factor of a constrained model, and no candidate model has "phi" (models.effects: parallel, nonparallel; the factors of named groups are phi.GROUP[m]); nearest valid names: "tau[2]", "a[2]", "b[2]"`,
+				`P46.yaml:21:7: inference.hypotheses[4]: "c = 0": "c" is a parameter of no candidate model`},
+			check: func(t *testing.T, dir, out, errs string) {
+				// b[2] = b[1] names parameters the nonparallel models have
+				// and the parallel ones not: it is tested where it can be.
+				if n := strings.Count(strings.TrimSpace(errs), "\n") + 1; n != 4 || strings.Contains(errs, "hypotheses[0]") || strings.Contains(errs, "hypotheses[5]") {
+					t.Errorf("want the four bad hypotheses only:\n%s", errs)
+				}
+			}},
+		{id: "P47", name: "a hypothesis naming a boundary the data's categories do not have", args: []string{"run"},
+			plan: goodPlan + "inference:\n  hypotheses:\n    - \"a = 0\"\n    - \"tau[3] = 0\"\n  multiplicity: holm\n", code: 1,
+			want: []string{`P47.yaml:17:7: inference.hypotheses[1]: "tau[3] = 0": "tau[3]" names boundary 3, and no outcome has that many boundaries (y has 2 between its 3 categories); nearest valid names: "tau[1]", "tau[2]"`},
+			check: func(t *testing.T, dir, out, errs string) {
+				// check --no-data cannot know the boundaries; check with
+				// the data says what run says.
+				p := filepath.Join(dir, "P47.yaml")
+				if o, _, code := runCLI("check", "--no-data", p); code != 0 {
+					t.Errorf("check --no-data: exit %d: %s", code, o)
+				}
+				if _, e, code := runCLI("check", p); code != 1 || !strings.Contains(e, `inference.hypotheses[1]: "tau[3] = 0": "tau[3]" names boundary 3`) {
+					t.Errorf("check: exit %d: %s", code, e)
+				}
+			}},
 		{id: "P36", name: "a test rule's applies_to naming an effect structure it cannot test", args: []string{"check"},
 			plan: edit("reject_unconverged: true", "reject_if_test_rejects: {applies_to: [parallel, stereotype, nonparallel]}"), code: 1, lines: true,
 			want: []string{`P36.yaml:12:53: rules[0].reject_if_test_rejects.applies_to[1]: "stereotype" is not in models.effects (parallel, nonparallel): the rule would test no such model`,

@@ -2,6 +2,7 @@ package words
 
 import (
 	"fmt"
+	"slices"
 	"strings"
 )
 
@@ -95,3 +96,61 @@ func list(words []string, last string) string {
 
 // OrList renders the words of the set as "a, b or c".
 func (s Set[T]) OrList() string { return OrList(s.names) }
+
+// Nearest gives up to n of names closest to w by edit distance (letters
+// inserted, deleted, replaced or two neighbours swapped, letter case
+// ignored), nearest first, ties in the order given; names farther than
+// half the length of w and at least 3 edits away are left out, so a word
+// unlike every name gets none.
+func Nearest(w string, names []string, n int) []string {
+	type cand struct {
+		name string
+		d, i int
+	}
+	lw := []rune(strings.ToLower(w))
+	var cs []cand
+	seen := map[string]bool{}
+	for i, name := range names {
+		if seen[name] || name == w {
+			continue
+		}
+		seen[name] = true
+		d := editDistance(lw, []rune(strings.ToLower(name)))
+		if d >= 3 && 2*d > len(lw) {
+			continue
+		}
+		cs = append(cs, cand{name, d, i})
+	}
+	slices.SortStableFunc(cs, func(a, b cand) int { return a.d - b.d })
+	var out []string
+	for _, c := range cs[:min(n, len(cs))] {
+		out = append(out, c.name)
+	}
+	return out
+}
+
+// editDistance counts the insertions, deletions, replacements and swaps
+// of neighbouring letters that turn a into b.
+func editDistance(a, b []rune) int {
+	prev2 := make([]int, len(b)+1)
+	prev := make([]int, len(b)+1)
+	cur := make([]int, len(b)+1)
+	for j := range prev {
+		prev[j] = j
+	}
+	for i := 1; i <= len(a); i++ {
+		cur[0] = i
+		for j := 1; j <= len(b); j++ {
+			cost := 1
+			if a[i-1] == b[j-1] {
+				cost = 0
+			}
+			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+cost)
+			if i > 1 && j > 1 && a[i-1] == b[j-2] && a[i-2] == b[j-1] {
+				cur[j] = min(cur[j], prev2[j-2]+1)
+			}
+		}
+		prev2, prev, cur = prev, cur, prev2
+	}
+	return prev[len(b)]
+}

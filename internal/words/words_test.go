@@ -1,6 +1,7 @@
 package words
 
 import (
+	"slices"
 	"strings"
 	"testing"
 )
@@ -28,5 +29,30 @@ func TestSetParsesPrintsAndLists(t *testing.T) {
 	}
 	if OrList([]string{"a", "b", "c"}) != "a, b or c" || OrList([]string{"a"}) != "a" {
 		t.Error("OrList")
+	}
+}
+
+func TestNearestByEditDistance(t *testing.T) {
+	names := []string{"dose.low", "dose.mid", "dose.high", "female", "age_c", "dose"}
+	for _, c := range []struct {
+		w    string
+		want []string
+	}{
+		{"dose.hgh", []string{"dose.high", "dose.low", "dose.mid"}}, // one deletion, then two edits each
+		{"dos", []string{"dose"}},
+		{"femael", []string{"female"}}, // a swap counts once
+		{"AGE_C", nil},                 // differs in case only: first, at distance 0
+		{"zzzzzzzz", nil},
+	} {
+		got := Nearest(c.w, names, 3)
+		if c.w == "AGE_C" {
+			if len(got) == 0 || got[0] != "age_c" {
+				t.Errorf("Nearest(%q) = %v, want age_c first", c.w, got)
+			}
+			continue
+		}
+		if !slices.Equal(got, c.want) {
+			t.Errorf("Nearest(%q) = %v, want %v", c.w, got, c.want)
+		}
 	}
 }

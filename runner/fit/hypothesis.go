@@ -47,6 +47,13 @@ func ParseHypothesis(text string, names []string) (*Hypothesis, error) {
 // add up beyond the largest number, a restriction of no parameter), known
 // from the plan alone.
 func CheckHypothesisText(text string) error {
+	_, err := HypothesisNames(text)
+	return err
+}
+
+// HypothesisNames gives the parameter names a hypothesis uses, in the
+// order of first use, reading it as CheckHypothesisText does.
+func HypothesisNames(text string) ([]string, error) {
 	var names []string
 	_, err := parseHypothesis(text, -1, func(name string) (int, error) {
 		if k := slices.Index(names, name); k >= 0 {
@@ -55,7 +62,20 @@ func CheckHypothesisText(text string) error {
 		names = append(names, name)
 		return len(names) - 1, nil
 	}, func(k int) string { return names[k] })
-	return err
+	return names, err
+}
+
+// WholeTermPart reads one restriction of a hypothesis (the text between
+// semicolons) of the form "NAME = 0" and gives NAME: written so, a term of
+// several columns (or of one parameter per boundary) is tested as a whole,
+// every parameter of its columns at 0.
+func WholeTermPart(part string) (string, bool) {
+	lhs, rhs, ok := strings.Cut(part, "=")
+	name := strings.TrimSpace(lhs)
+	if !ok || strings.TrimSpace(rhs) != "0" || name == "" || strings.ContainsAny(name, " \t+-*") {
+		return "", false
+	}
+	return name, true
 }
 
 // parseHypothesis reads text with the parameter index of each name from
