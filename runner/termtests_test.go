@@ -336,3 +336,20 @@ rules:
   - choose: {by: ` + by + `}
 `
 }
+
+// TestTermTestOfOnlyTerm: when the model has one term, the model without
+// it is the thresholds-only model, so the term's likelihood-ratio test is
+// the model's test against the thresholds-only model (fitted apart, by
+// fit.FitNull), on the housing table collapsed to two categories.
+func TestTermTestOfOnlyTerm(t *testing.T) {
+	dir := t.TempDir()
+	src := strings.Replace(housingTwo(t, dir), "predictors: [infl, type, cont, {interact: [infl, cont]}]", "predictors: [type]", 1)
+	or := runPlan(t, planIn(t, dir, src), 0).Outcomes[0]
+	if len(or.TermTests) != 1 || len(or.Overall) != 1 {
+		t.Fatalf("%+v %+v", or.TermTests, or.Overall)
+	}
+	lr, all := or.TermTests[0].LR, or.Overall[0].LR
+	if !lr.OK || lr.DF != all.DF || math.Abs(lr.Chi2-all.Chi2) > 1e-9*all.Chi2 {
+		t.Errorf("type: %+v; against the thresholds-only model: %+v", lr, all)
+	}
+}
