@@ -182,8 +182,13 @@ func writeMissing(d *doc, or *runner.OutcomeResult) {
 	}
 	incomplete := mt.Rows - complete
 	if or.Imputed != nil {
-		d.p("Missing values in the columns the analysis uses, in the original data %s. Of %d rows, %d (%s) miss at least one used column; the analysis uses the %d imputed data sets instead (see Multiple imputation).",
-			mdCode(originalFile(or)), mt.Rows, incomplete, sharePct(incomplete, mt.Rows), or.Imputed.M)
+		dropped := ""
+		if obs := or.Observed; obs != nil && obs.Incomplete < incomplete {
+			n := incomplete - obs.Incomplete
+			dropped = fmt.Sprintf("; %d of them miss a column that imputation does not fill (weights, offset, cluster, or a column the subset's conditions read, without which whether the row belongs to the subset is unknown) and were dropped, the %d others were imputed", n, obs.Incomplete)
+		}
+		d.p("Missing values in the columns the analysis uses, in the original data %s. Of %d rows, %d (%s) miss at least one used column%s; the analysis uses the %d imputed data sets instead (see Multiple imputation).",
+			mdCode(originalFile(or)), mt.Rows, incomplete, sharePct(incomplete, mt.Rows), dropped, or.Imputed.M)
 	} else {
 		d.p("Missing values in the columns the analysis uses. Of %d rows, %d (%s) miss at least one used column; they were dropped before any fit, and the %d complete rows (%s) are analysed.",
 			mt.Rows, incomplete, sharePct(incomplete, mt.Rows), complete, sharePct(complete, mt.Rows))

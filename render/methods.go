@@ -7,8 +7,10 @@ import (
 	"strings"
 
 	"ordplan/internal/words"
+	"ordplan/plan"
 	"ordplan/plan/lock"
 	"ordplan/runner"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 
@@ -98,14 +100,8 @@ func writeMethods(d *doc, r *runner.Result) {
 				within = " that met the plan's subset conditions"
 			}
 			s = append(s, fmt.Sprintf("Each of the %d imputed data sets held %d rows%s, all used.", or.Imputed.M, or.Imputed.Rows, within))
-		case ds.RowsOutside > 0:
-			var conds []string
-			for _, c := range p.Subset {
-				conds = append(conds, c.String())
-			}
-			in := ds.RowsRead - ds.RowsOutside
-			s = append(s, fmt.Sprintf("Of %d rows, %d met the plan's subset conditions (%s); of these, %d were used and %d were dropped for missing values or zero weight before any model was fitted.",
-				ds.RowsRead, in, strings.Join(conds, "; "), ds.N, in-ds.N))
+		case ds.RowsOutside > 0 || ds.RowsUndecided > 0:
+			s = append(s, subsetMethods(p, ds, or.Imputed != nil))
 		case ds.RowsDropped > 0:
 			s = append(s, fmt.Sprintf("Of %d rows, %d were used; %d were dropped for missing values or zero weight before any model was fitted.", ds.RowsRead, ds.N, ds.RowsDropped))
 		default:
@@ -276,6 +272,46 @@ func short(h string) string {
 		return h[:12]
 	}
 	return h
+}
+
+// subsetMethods says how the plan's subset divided the rows read: those
+// outside it (a condition fails), those whose place is unknown (a column
+// a condition reads is missing, and no condition fails), and of those
+// that meet the conditions the rows used and dropped. imputed: the
+// outcome's missing values were imputed (data.missing: impute).
+func subsetMethods(p *plan.Plan, ds *data.Dataset, imputed bool) string {
+	var conds []string
+	for _, c := range p.Subset {
+		conds = append(conds, c.String())
+	}
+	in := ds.RowsRead - ds.RowsOutside - ds.RowsUndecided
+	var parts []string
+	if ds.RowsOutside > 0 {
+		parts = append(parts, fmt.Sprintf("%d failed them", ds.RowsOutside))
+	}
+	undecided := ""
+	if ds.RowsUndecided > 0 {
+		var cols []string
+		if mt := ds.Missing; mt != nil {
+			for j, col := range mt.Columns {
+				if mt.ByColumn[j] > 0 && slices.ContainsFunc(p.Subset, func(c data.Condition) bool { return c.Column == col }) {
+					cols = append(cols, fmt.Sprintf("%s: %d", col, mt.ByColumn[j]))
+				}
+			}
+		}
+		parts = append(parts, fmt.Sprintf("%d could not be judged because they miss a column the conditions read (%s)", ds.RowsUndecided, strings.Join(cols, ", ")))
+		undecided = fmt.Sprintf(" The %d rows whose membership of the subset is unknown were dropped as rows with missing values", ds.RowsUndecided)
+		if imputed {
+			undecided += " and not imputed: an imputed value would put a row inside the subset in some imputed sets and outside it in others"
+		}
+		undecided += "."
+	}
+	used := fmt.Sprintf("Of the %d rows that met the conditions, %d were used and %d were dropped for missing values or zero weight before any model was fitted.", in, ds.N, in-ds.N)
+	if in == ds.N {
+		used = fmt.Sprintf("All %d rows that met the conditions were used.", in)
+	}
+	return fmt.Sprintf("Of %d rows, %d met the plan's subset conditions (%s), %s.%s %s",
+		ds.RowsRead, in, strings.Join(conds, "; "), words.AndList(parts), undecided, used)
 }
 
 func plural(n int) string {

@@ -100,16 +100,18 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	}
 	res.Registration = reg
 	res.Simulated = &runner.Simulation{Command: "rehearse", N: rows, Seed: p.Seed, Link: sim.Link.String(), Model: sim.GeneratingModel(), File: simulatedFile, Truth: sim.Truth()}
+	analysed := rows
 	if len(p.Subset) > 0 && len(res.Outcomes) > 0 && res.Outcomes[0].Data != nil {
-		kept := res.Outcomes[0].Data.RowsRead - res.Outcomes[0].Data.RowsOutside
+		// The rows that meet the subset; the missing values were counted
+		// among those the subset does not exclude (Sim.WriteCounted), with
+		// the rows whose subset column is missing.
+		ds := res.Outcomes[0].AsRead()
+		kept := ds.RowsRead - ds.RowsOutside - ds.RowsUndecided
+		analysed = ds.RowsRead - ds.RowsOutside
 		res.Simulated.Kept = &kept
 		for _, c := range p.Subset {
 			res.Simulated.Subset = append(res.Simulated.Subset, c.String())
 		}
-	}
-	analysed := rows
-	if res.Simulated.Kept != nil {
-		analysed = *res.Simulated.Kept
 	}
 	res.Simulated.Missing = sim.MissingRecord(missing, analysed)
 	dec := runner.BuildDecisions(res)

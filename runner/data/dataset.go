@@ -57,8 +57,15 @@ type Dataset struct {
 	// that no kept row has.
 	UnobservedLevels []LevelRef
 	// RowsOutside is the number of rows the subset conditions dropped
-	// (included in RowsDropped).
+	// (included in RowsDropped): rows that fail a condition.
 	RowsOutside int
+	// RowsUndecided is the number of rows that fail no subset condition
+	// but miss a column one reads, so that whether they belong to the
+	// subset is unknown: they are rows with missing values, counted in
+	// Dropped under their first missing column and in Missing (included in
+	// RowsDropped; never kept for imputation). RowsRead - RowsOutside -
+	// RowsUndecided rows meet the conditions.
+	RowsUndecided int
 	// Notes are remarks of the steps after reading that the user must see
 	// (a declared level dropped because no row has it).
 	Notes []string
@@ -71,14 +78,16 @@ type Dataset struct {
 }
 
 // MissingTable is the missing-value pattern of the used columns (outcome,
-// predictors, weights, offset, cluster, in that order).
+// predictors, weights, offset, cluster, then the columns only the subset
+// reads, in that order).
 type MissingTable struct {
 	Columns  []string
 	ByColumn []int            // rows with a missing value in each column
 	Patterns []MissingPattern // rows dropped, by the set of columns they miss
-	// Rows is the number of rows the table describes: the rows of the
-	// subset, less complete rows of zero weight (complete rows N plus the
-	// rows of Patterns).
+	// Rows is the number of rows the table describes: the rows no subset
+	// condition excludes (those that meet them, and those that miss a
+	// column one reads), less complete rows of zero weight (complete rows N
+	// plus the rows of Patterns).
 	Rows int
 	// ByCategory gives, for each outcome category (the categories of the
 	// data set in order, then any category seen only in incomplete rows),
@@ -130,8 +139,17 @@ func (d *Dataset) DropSummary() string {
 	if d.RowsOutside > 0 {
 		why = "the subset, missing values or zero weight"
 	}
-	return fmt.Sprintf("%d of %d rows dropped for %s (%s)",
-		d.RowsDropped, d.RowsRead, why, dropList(d.Dropped))
+	return fmt.Sprintf("%d of %d rows dropped for %s (%s)%s",
+		d.RowsDropped, d.RowsRead, why, dropList(d.Dropped), d.UndecidedSummary())
+}
+
+// UndecidedSummary says, after a list of dropped rows, how many of them
+// miss a column of the subset's conditions (RowsUndecided); "" for none.
+func (d *Dataset) UndecidedSummary() string {
+	if d.RowsUndecided == 0 {
+		return ""
+	}
+	return fmt.Sprintf("; among them, rows that miss a column the subset's conditions read, so that whether they belong to the subset is unknown: %d (counted as missing values, not as outside the subset)", d.RowsUndecided)
 }
 
 func dropList(dc []DropCount) string {

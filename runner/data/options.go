@@ -92,10 +92,14 @@ type usedCol struct {
 	role  role
 	pos   int // position among the predictors (predictors only)
 	index int // field index in the file
+	// cond: a subset condition reads the column (whatever its role), so
+	// that a row missing it cannot be placed in or out of the subset: it
+	// is a row with a missing value there, which imputation does not fill.
+	cond bool
 }
 
 // plan lists the used columns in Options order: outcome, predictors,
-// weights, offset, cluster.
+// weights, offset, cluster, then the columns only the subset reads.
 func (o *Options) plan() ([]usedCol, error) {
 	if strings.TrimSpace(o.Outcome) == "" {
 		return nil, fmt.Errorf("no outcome column given")
@@ -134,6 +138,9 @@ func (o *Options) plan() ([]usedCol, error) {
 			return nil, fmt.Errorf("column %q is given both as %s and as %s", c.name, r, c.role)
 		}
 		seen[c.name] = c.role
+	}
+	for i := range cols {
+		cols[i].cond = slices.ContainsFunc(o.Keep, func(k Condition) bool { return k.Column == cols[i].name })
 	}
 	if err := checkCategories(o.Categories); err != nil {
 		return nil, err
@@ -241,6 +248,13 @@ func (r *reader) readNumbers(cols ...string) {
 			r.numCodes[col] = codes
 		}
 	}
+}
+
+// comparedAsNumbers reports whether a subset condition compares column
+// col with a number: its cells are then read as numbers, and a missing
+// code that is a number marks that number however it is written (-9.0).
+func (r *reader) comparedAsNumbers(col string) bool {
+	return slices.ContainsFunc(r.opt.Keep, func(k Condition) bool { return k.Column == col && k.numeric() })
 }
 
 // CodedAs returns o set to read the outcome as the whole of data held in

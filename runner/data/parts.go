@@ -293,6 +293,7 @@ func (s *PartsSummary) Add(ds *Dataset) {
 	s.d.RowsRead += ds.RowsRead
 	s.d.N += ds.N
 	s.d.RowsOutside += ds.RowsOutside
+	s.d.RowsUndecided += ds.RowsUndecided
 	s.d.RowsDropped += ds.RowsDropped
 	for _, dc := range ds.Dropped {
 		i := slices.IndexFunc(s.d.Dropped, func(c DropCount) bool { return c.Column == dc.Column })

@@ -172,7 +172,7 @@ func (r *reader) header(cols []usedCol) error {
 	}
 	r.cols = cols
 	for _, c := range cols {
-		if c.role == rolePredictor && r.opt.PredictorLevels[c.name] == nil || c.role == roleWeights || c.role == roleOffset {
+		if c.role == rolePredictor && r.opt.PredictorLevels[c.name] == nil || c.role == roleWeights || c.role == roleOffset || r.comparedAsNumbers(c.name) {
 			r.readNumbers(c.name)
 		}
 	}

@@ -204,7 +204,11 @@ func (r *reader) newRowTally(K int) *rowTally {
 }
 
 // outsideSubset returns the first subset condition the row fails (-1: it
-// is inside the subset).
+// fails none). A condition whose column the row misses is not judged: the
+// row is outside the subset only when another condition excludes it;
+// otherwise it is a row with a missing value in that column (parseRow
+// marks it, countIncomplete counts it), whose place in the subset is
+// unknown.
 func (r *reader) outsideSubset(t *rowTally, rec []string) (int, error) {
 	for i, seen := range t.listSeen {
 		if seen != nil && len(seen) < maxListValues {
@@ -216,7 +220,10 @@ func (r *reader) outsideSubset(t *rowTally, rec []string) (int, error) {
 	for i, k := range r.opt.Keep {
 		c := r.cols[t.condCol[i]]
 		cell := strings.TrimSpace(rec[c.index])
-		ok, msg := k.keeps(cell, r.missing[cell], r.opt.Dialect)
+		if r.missingIn(c.name, cell) {
+			continue
+		}
+		ok, msg := k.keeps(cell, r.opt.Dialect)
 		if msg != "" {
 			line, _ := r.cr.FieldPos(c.index)
 			return -1, r.fail(line, c.name, "%s", msg)
@@ -239,14 +246,15 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 	}
 	row := cells{miss: -1, w: 1}
 	for ci, c := range r.cols {
-		if c.role == roleSubset {
-			continue
-		}
 		cell := strings.TrimSpace(rec[c.index])
 		line, _ := r.cr.FieldPos(c.index)
 		if r.missingIn(c.name, cell) {
 			if opt.Refuse {
-				return row, r.fail(line, c.name, "missing value (%s) where missing values are refused", describeMissing(cell))
+				undecided := ""
+				if c.cond {
+					undecided = "; the subset's condition on this column cannot be judged"
+				}
+				return row, r.fail(line, c.name, "missing value (%s) where missing values are refused%s", describeMissing(cell), undecided)
 			}
 			if row.miss < 0 {
 				row.miss = ci
@@ -256,6 +264,9 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 				t.xs[c.pos] = math.NaN()
 			}
 			continue
+		}
+		if c.role == roleSubset {
+			continue // judged by outsideSubset
 		}
 		var msg string
 		switch c.role {
@@ -350,10 +361,15 @@ func (r *reader) keepsIncomplete(t *rowTally) bool {
 }
 
 // unimputed is the first used column the current row misses that
-// imputation does not fill (neither the outcome nor a predictor), or -1.
+// imputation does not fill, or -1: neither the outcome nor a predictor,
+// or a column a subset condition reads. The subset says which rows the
+// analysis is about; a row whose membership is unknown is not imputed
+// into it (imputing the column would put the row in the subset in some
+// imputed sets and out of it in others, and the sets must hold the same
+// rows).
 func (r *reader) unimputed(t *rowTally) int {
 	for ci, c := range r.cols {
-		if t.pat[ci] == 'x' && c.role != roleOutcome && c.role != rolePredictor {
+		if t.pat[ci] == 'x' && (c.cond || c.role != roleOutcome && c.role != rolePredictor) {
 			return ci
 		}
 	}
@@ -435,6 +451,7 @@ func (r *reader) countDrops(t *rowTally, d *Dataset) error {
 		}
 	}
 	d.Missing = missingPatterns(r.cols, t.patterns)
+	d.RowsUndecided = r.undecided(t.patterns)
 	if t.zeroWeight > 0 {
 		d.Dropped = append(d.Dropped, DropCount{Column: opt.Weights + " = 0", Rows: t.zeroWeight})
 		d.RowsDropped += t.zeroWeight
@@ -462,6 +479,23 @@ func (r *reader) countDrops(t *rowTally, d *Dataset) error {
 		}
 	}
 	return r.noneKept(d, false)
+}
+
+// undecided counts the rows of the missing-value patterns that miss a
+// column of a subset condition: no condition excluded them (those are
+// outside the subset, and not in the patterns), and one could not be
+// judged.
+func (r *reader) undecided(patterns map[string]int) int {
+	n := 0
+	for k, rows := range patterns {
+		for ci, c := range r.cols {
+			if c.cond && k[ci] == 'x' {
+				n += rows
+				break
+			}
+		}
+	}
+	return n
 }
 
 // noneKept refuses data that keep no row: outside the subset (subset set:
@@ -501,12 +535,6 @@ func (r *reader) noneKept(d *Dataset, subset bool) error {
 // each category and the incomplete rows whose outcome is that category.
 // Categories seen only in incomplete rows follow the data set's, sorted.
 func (t *MissingTable) byCategory(cols []usedCol, d *Dataset, catMiss map[string][]int, catIncomplete map[string]int) {
-	var idx []int
-	for i, c := range cols {
-		if c.role != roleSubset {
-			idx = append(idx, i)
-		}
-	}
 	kept := make([]int, len(d.Categories))
 	for i, y := range d.Y {
 		// Without kept incomplete rows every row is complete: no NaN to look for.
@@ -519,12 +547,10 @@ func (t *MissingTable) byCategory(cols []usedCol, d *Dataset, catMiss map[string
 		t.Rows += p.Rows
 	}
 	add := func(label string, complete int) {
-		cm := CategoryMissing{Category: label, ByColumn: make([]int, len(idx)), Incomplete: catIncomplete[label]}
+		cm := CategoryMissing{Category: label, ByColumn: make([]int, len(cols)), Incomplete: catIncomplete[label]}
 		cm.Rows = complete + cm.Incomplete
 		if m := catMiss[label]; m != nil {
-			for j, i := range idx {
-				cm.ByColumn[j] = m[i]
-			}
+			copy(cm.ByColumn, m)
 		}
 		t.ByCategory = append(t.ByCategory, cm)
 	}
@@ -675,15 +701,10 @@ func (r *reader) twoCategories(d *Dataset) error {
 // first, ties in the order of the pattern text.
 func missingPatterns(cols []usedCol, patterns map[string]int) *MissingTable {
 	t := &MissingTable{}
-	var idx []int // positions of the columns the table shows (subset columns are not data of the fits)
-	for i, c := range cols {
-		if c.role == roleSubset {
-			continue
-		}
-		idx = append(idx, i)
+	for _, c := range cols {
 		t.Columns = append(t.Columns, c.name)
 	}
-	t.ByColumn = make([]int, len(idx))
+	t.ByColumn = make([]int, len(cols))
 	keys := make([]string, 0, len(patterns))
 	for k := range patterns {
 		keys = append(keys, k)
@@ -695,9 +716,9 @@ func missingPatterns(cols []usedCol, patterns map[string]int) *MissingTable {
 		return strings.Compare(a, b)
 	})
 	for _, k := range keys {
-		mp := MissingPattern{Rows: patterns[k], Missing: make([]bool, len(idx))}
-		for j, i := range idx {
-			if k[i] == 'x' {
+		mp := MissingPattern{Rows: patterns[k], Missing: make([]bool, len(cols))}
+		for j := range cols {
+			if k[j] == 'x' {
 				mp.Missing[j] = true
 				t.ByColumn[j] += patterns[k]
 			}

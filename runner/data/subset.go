@@ -9,8 +9,11 @@ import (
 
 // Condition keeps the rows whose cell in Column compares with a number
 // (Op one of <, <=, >, >=, ==, !=) or is (Op "in") or is not (Op
-// "not_in") one of the texts in Values. A missing cell fails the
-// condition.
+// "not_in") one of the texts in Values. A missing cell (any marker: the
+// plan's, the column's own codes, a code that is a number written
+// otherwise) neither meets nor fails it: whether such a row belongs to the
+// subset is unknown, and the reader counts it as a row with a missing
+// value in the column (reader.outsideSubset), not as outside the subset.
 type Condition struct {
 	Column string   `json:"column"`
 	Op     string   `json:"op"`
@@ -33,12 +36,10 @@ func (c Condition) String() string {
 	return fmt.Sprintf("%s %s %s", c.Column, c.Op, strconv.FormatFloat(c.Number, 'g', -1, 64))
 }
 
-// keeps reports whether the trimmed cell meets the condition; a message
-// is returned when a comparison meets a cell that is not a number.
-func (c Condition) keeps(cell string, missing bool, d Dialect) (bool, string) {
-	if missing {
-		return false, ""
-	}
+// keeps reports whether the trimmed cell, which is not missing, meets the
+// condition; a message is returned when a comparison meets a cell that is
+// not a number.
+func (c Condition) keeps(cell string, d Dialect) (bool, string) {
 	switch c.Op {
 	case "in":
 		return slices.ContainsFunc(c.Values, func(s string) bool { return sameText(s, cell) }), ""
@@ -66,11 +67,16 @@ func (c Condition) keeps(cell string, missing bool, d Dialect) (bool, string) {
 	return false, "unknown comparison " + strconv.Quote(c.Op)
 }
 
+// numeric reports whether the condition compares numbers (not texts).
+func (c Condition) numeric() bool {
+	return c.Op != "in" && c.Op != "not_in"
+}
+
 // Keeps reports whether a cell written with a decimal point (as the
 // simulated files of ordplan rehearse and power write it) meets the
-// condition, as the reader would decide; a cell that is not a number
-// fails a comparison of numbers.
+// condition, as the reader would decide for a cell that is not missing; a
+// cell that is not a number fails a comparison of numbers.
 func (c Condition) Keeps(cell string) bool {
-	ok, _ := c.keeps(cell, false, Dialect{})
+	ok, _ := c.keeps(cell, Dialect{})
 	return ok
 }

@@ -689,6 +689,24 @@ func (s *Sim) inSubset(r *row) bool {
 	return true
 }
 
+// notOutside reports whether the reader leaves a drawn row, missing the
+// columns missed of s.Missing, out of the rows the subset excludes: no
+// condition fails on a value the file holds. A condition on a value
+// written as missing is not judged (the reader counts such a row as a row
+// with a missing value, not as outside the subset).
+func (s *Sim) notOutside(r *row, missed []int) bool {
+	for i, c := range s.Keep {
+		k := s.keepCol[i]
+		if slices.ContainsFunc(missed, func(mi int) bool { return s.Missing[mi].outcome < 0 && s.Missing[mi].pred == k }) {
+			continue
+		}
+		if !c.Keeps(s.value(r, k)) {
+			return false
+		}
+	}
+	return true
+}
+
 // calibrate solves the cutpoints so that the category proportions over the
 // calibration sample (design matrix X, n rows) are the stated ones, and
 // checks that a cumulative model's probabilities never cross.
@@ -938,7 +956,9 @@ func (s *Sim) Write(w io.Writer, n int, replicate uint64) error {
 }
 
 // WriteCounted is Write, giving also how many values of each column of
-// Missing it wrote as missing in the rows the plan's subset keeps. The
+// Missing it wrote as missing in the rows the plan's subset does not
+// exclude, as the reader judges them (notOutside): the rows that meet it,
+// and those whose subset column was written missing. The
 // missing values are drawn from a stream of their own, so the values
 // that stay are those of the same data set without missingness.
 func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) ([]int, error) {
@@ -963,6 +983,7 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) ([]int, error) 
 		sc[oi] = scratch{make([]float64, len(o.Sources)), make([]float64, len(o.Design.Columns)), make([]float64, q), make([]float64, q), make([]float64, q+1)}
 	}
 	cells := make([]string, 0, len(h))
+	var missed []int // the columns of s.Missing the current row misses
 	for i := 0; i < n; i++ {
 		s.drawRow(rng, &r)
 		cells = cells[:0]
@@ -1010,6 +1031,7 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) ([]int, error) 
 		for k := range s.Predictors {
 			cells = append(cells, csvCell(s.value(&r, k)))
 		}
+		missed = missed[:0]
 		for mi := range s.Missing {
 			mc := &s.Missing[mi]
 			if mrng.Float64() >= mc.prob(&r, ys) {
@@ -1020,7 +1042,10 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) ([]int, error) 
 				at = len(s.Outcomes) + mc.pred
 			}
 			cells[at] = csvCell(mc.marker)
-			if kept {
+			missed = append(missed, mi)
+		}
+		if s.notOutside(&r, missed) {
+			for _, mi := range missed {
 				counts[mi]++
 			}
 		}
