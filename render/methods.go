@@ -285,7 +285,7 @@ func subsetMethods(p *plan.Plan, ds *data.Dataset, imputed bool) string {
 		conds = append(conds, c.String())
 	}
 	in := ds.RowsRead - ds.RowsOutside - ds.RowsUndecided
-	var parts []string
+	parts := []string{fmt.Sprintf("%d met the plan's subset conditions (%s)", in, strings.Join(conds, "; "))}
 	if ds.RowsOutside > 0 {
 		parts = append(parts, fmt.Sprintf("%d failed them", ds.RowsOutside))
 	}
@@ -310,8 +310,7 @@ func subsetMethods(p *plan.Plan, ds *data.Dataset, imputed bool) string {
 	if in == ds.N {
 		used = fmt.Sprintf("All %d rows that met the conditions were used.", in)
 	}
-	return fmt.Sprintf("Of %d rows, %d met the plan's subset conditions (%s), %s.%s %s",
-		ds.RowsRead, in, strings.Join(conds, "; "), words.AndList(parts), undecided, used)
+	return fmt.Sprintf("Of %d rows, %s.%s %s", ds.RowsRead, words.AndList(parts), undecided, used)
 }
 
 func plural(n int) string {
