@@ -12,11 +12,11 @@ import (
 // a >= 0 (a: a predictor, own missing code -9) and s in {x} (s: read only
 // by the subset, own missing code "unk").
 //
-//	 1 kept           6 a -9.0: unknown     11 y, a missing: unknown
-//	 2 kept           7 s = z: outside s    12 a = -2: outside a
-//	 3 a = -1: out a  8 s unk: unknown      13 kept
-//	 4 a NA: unknown  9 s empty: unknown    14 kept
-//	 5 a -9: unknown 10 y missing, inside
+//	1 kept           6 a -9.0: unknown     11 y, a missing: unknown
+//	2 kept           7 s = z: outside s    12 a = -2: outside a
+//	3 a = -1: out a  8 s unk: unknown      13 kept
+//	4 a NA: unknown  9 s empty: unknown    14 kept
+//	5 a -9: unknown 10 y missing, inside
 const subsetRows = "y,a,s\n" +
 	"1,1,x\n2,2,x\n1,-1,x\n2,NA,x\n1,-9,x\n2,-9.0,x\n1,-9,z\n" +
 	"2,3,unk\n1,4,\n,5,x\n,NA,x\n2,-2,unk\n1,6,x\n2,7,x\n"
