@@ -101,7 +101,7 @@ func writeMethods(d *doc, r *runner.Result) {
 			}
 			s = append(s, fmt.Sprintf("Each of the %d imputed data sets held %d rows%s, all used.", or.Imputed.M, or.Imputed.Rows, within))
 		case ds.RowsOutside > 0 || ds.RowsUndecided > 0:
-			s = append(s, subsetMethods(p, ds, or.Imputed != nil))
+			s = append(s, subsetMethods(p, ds, p.Data.Imputes()))
 		case ds.RowsDropped > 0:
 			s = append(s, fmt.Sprintf("Of %d rows, %d were used; %d were dropped for missing values or zero weight before any model was fitted.", ds.RowsRead, ds.N, ds.RowsDropped))
 		default:

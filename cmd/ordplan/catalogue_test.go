@@ -437,6 +437,29 @@ func separationMissed(out, errs string, code int) string {
 // (a gap), set 1 only, set 2 one row short, set 2 with a missing value,
 // a fractional imputation number, and a file with other columns.
 // allMissing writes allmiss.csv: d.csv with column b empty in every row.
+// subsetAges writes subna.csv: 60 invented rows (y cycling 1, 2, 3; a and
+// b from the row number) whose age, read by the subset age >= 18, is NA
+// on every 7th row, -9 (a missing code of the plan) on every 11th and
+// -9.0 (the code written otherwise) on every 13th; of the others 3 are
+// under 18. By awk: outside 3, age missing 17, met 40.
+func subsetAges(t *testing.T, dir, id string) {
+	var b strings.Builder
+	b.WriteString("y,a,b,age\n")
+	for i := 1; i <= 60; i++ {
+		age := strconv.Itoa(15 + i*7%50)
+		switch {
+		case i%7 == 0:
+			age = "NA"
+		case i%11 == 0:
+			age = "-9"
+		case i%13 == 0:
+			age = "-9.0"
+		}
+		fmt.Fprintf(&b, "%d,%.2f,%d,%s\n", i%3+1, float64(i*37%100)/25-2, i*7%2, age)
+	}
+	os.WriteFile(filepath.Join(dir, "subna.csv"), []byte(b.String()), 0o644)
+}
+
 func allMissing(t *testing.T, dir, id string) {
 	t.Helper()
 	b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
@@ -763,6 +786,29 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{"ordplan: semiq.csv:1: malformed CSV at character 3: extraneous or missing \" in quoted-field; the file looks semicolon-separated with a decimal comma, but is read as comma-separated with a decimal point: set delimiter: semicolon and decimal: comma under data (ordplan fit: --delimiter semicolon --decimal comma)\n"}},
 		{id: "D26", name: "quoted names of a file in another CSV dialect, at check", args: []string{"check"}, plan: edit("file: d.csv", "file: semiq.csv"), code: 1,
 			want: []string{`D26.yaml:3:3: data.delimiter: data file semiq.csv: the file looks semicolon-separated with a decimal comma, but is read as comma-separated with a decimal point: set delimiter: semicolon and decimal: comma under data (ordplan fit: --delimiter semicolon --decimal comma)`}},
+		{id: "D30", name: "missing values in a column the subset reads", args: []string{"run"}, setup: subsetAges,
+			plan: edit("  file: d.csv\n", "  file: subna.csv\n  missing_values: [\"NA\", \"-9\"]\n") + "subset:\n  - {column: age, at_least: 18}\n", code: 0,
+			check: func(t *testing.T, dir, out, errs string) {
+				b, err := os.ReadFile(filepath.Join(dir, "D30-out", "report.md"))
+				for _, want := range []string{"60 rows read, 40 used; 20 of 60 rows dropped for the subset, missing values or zero weight (age: 17, outside the subset age >= 18: 3); among them, rows that miss a column the subset's conditions read, so that whether they belong to the subset is unknown: 17 (counted as missing values, not as outside the subset)",
+					"Of 60 rows, 40 met the plan's subset conditions (age >= 18), 3 failed them and 17 could not be judged because they miss a column the conditions read (age: 17)."} {
+					if err != nil || !strings.Contains(string(b), want) {
+						t.Errorf("report.md lacks %q (%v)", want, err)
+					}
+				}
+			}},
+		{id: "D31", name: "a missing value in a column the subset reads, where missing values are refused", args: []string{"run"}, setup: subsetAges,
+			plan: edit("  file: d.csv\n", "  file: subna.csv\n  missing: refuse\n  missing_values: [\"NA\", \"-9\"]\n") + "subset:\n  - {column: age, at_least: 18}\n", code: 1,
+			want: []string{`subna.csv:8: column "age": missing value ("NA") where missing values are refused; the subset's condition on this column cannot be judged`}},
+		{id: "D32", name: "missing values in a column the subset reads, with imputation", args: []string{"run"}, setup: subsetAges,
+			plan: edit("  file: d.csv\n", "  file: subna.csv\n  missing: impute\n  missing_values: [\"NA\", \"-9\"]\n", "[a, b]", "[a, b, age]") + "subset:\n  - {column: age, at_least: 18}\n", code: 0,
+			check: func(t *testing.T, dir, out, errs string) {
+				b, err := os.ReadFile(filepath.Join(dir, "D32-out", "report.md"))
+				want := "The 17 rows whose membership of the subset is unknown were dropped as rows with missing values and not imputed: an imputed value would put a row inside the subset in some imputed sets and outside it in others."
+				if err != nil || !strings.Contains(string(b), want) {
+					t.Errorf("report.md lacks %q (%v)", want, err)
+				}
+			}},
 		{id: "X1", name: "malformed .xlsx workbook", args: fitArgs(d("bad.xlsx"), "--predictors", "a,b"), code: 1,
 			want: []string{`bad.xlsx: is not a readable .xlsx workbook (`, `): open and save it again as .xlsx, or export the sheet as CSV`}},
 		{id: "X2", name: "CSV text named .xlsx", args: fitArgs(d("notzip.xlsx"), "--predictors", "a,b"), code: 1,
