@@ -43,7 +43,9 @@ type Dataset struct {
 	RowsDropped int
 	// Dropped lists rows dropped for missing values per column. A row is
 	// counted once, under the first used column (outcome, predictors,
-	// weights, offset, cluster) that is missing; entries follow that order.
+	// weights, offset, cluster, columns only the subset reads) that is
+	// missing, or with KeepIncomplete under the first it misses that
+	// imputation does not fill; entries follow that order.
 	Dropped []DropCount
 	// Missing counts the missing values of the used columns: per column
 	// (every missing cell, not only the first of its row) and per pattern.

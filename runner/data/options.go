@@ -39,7 +39,8 @@ type Options struct {
 	// KeepIncomplete keeps rows whose missing values are all in the
 	// outcome or predictor columns, for imputation: a missing predictor is
 	// NaN in X, a missing outcome -1 in Y (Dataset.Incomplete counts such
-	// rows). Rows missing a weight, offset or cluster are dropped as usual.
+	// rows). Rows missing a weight, offset, cluster or a column a subset
+	// condition reads are dropped as usual.
 	KeepIncomplete bool `json:"keep_incomplete"`
 	// MissingTokens are the cell values (after trimming spaces) that mean
 	// missing; nil means DefaultMissing.
