@@ -181,17 +181,21 @@ func writeMissing(d *doc, or *runner.OutcomeResult) {
 		}
 	}
 	incomplete := mt.Rows - complete
+	of := fmt.Sprintf("Of %d rows", mt.Rows)
+	if or.AsRead().RowsOutside > 0 {
+		of = fmt.Sprintf("Of the %d rows the subset does not exclude", mt.Rows)
+	}
 	if or.Imputed != nil {
 		dropped := ""
 		if obs := or.Observed; obs != nil && obs.Incomplete < incomplete {
 			n := incomplete - obs.Incomplete
 			dropped = fmt.Sprintf("; %d of them miss a column that imputation does not fill (weights, offset, cluster, or a column the subset's conditions read, without which whether the row belongs to the subset is unknown) and were dropped, the %d others were imputed", n, obs.Incomplete)
 		}
-		d.p("Missing values in the columns the analysis uses, in the original data %s. Of %d rows, %d (%s) miss at least one used column%s; the analysis uses the %d imputed data sets instead (see Multiple imputation).",
-			mdCode(originalFile(or)), mt.Rows, incomplete, sharePct(incomplete, mt.Rows), dropped, or.Imputed.M)
+		d.p("Missing values in the columns the analysis uses, in the original data %s. %s, %d (%s) miss at least one used column%s; the analysis uses the %d imputed data sets instead (see Multiple imputation).",
+			mdCode(originalFile(or)), of, incomplete, sharePct(incomplete, mt.Rows), dropped, or.Imputed.M)
 	} else {
-		d.p("Missing values in the columns the analysis uses. Of %d rows, %d (%s) miss at least one used column; they were dropped before any fit, and the %d complete rows (%s) are analysed.",
-			mt.Rows, incomplete, sharePct(incomplete, mt.Rows), complete, sharePct(complete, mt.Rows))
+		d.p("Missing values in the columns the analysis uses. %s, %d (%s) miss at least one used column; they were dropped before any fit, and the %d complete rows (%s) are analysed.",
+			of, incomplete, sharePct(incomplete, mt.Rows), complete, sharePct(complete, mt.Rows))
 	}
 	var rows [][]string
 	for j, c := range mt.Columns {
