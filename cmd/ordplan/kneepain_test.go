@@ -78,7 +78,7 @@ func TestRehearseWithSubset(t *testing.T) {
 	}
 	md, _ := os.ReadFile(filepath.Join(dir, "r", "report.md"))
 	for _, want := range []string{"with a stage (forward) logit model generating each outcome", "The plan's subset (baseline_pain >= 3) kept ",
-		" of the 300 simulated rows. The stated category proportions describe the rows the subset keeps, the population the plan analyses", "met the plan's subset conditions (baseline_pain >= 3), ", " failed them. "} {
+		" of the 300 simulated rows. The stated category proportions describe the rows the subset keeps, the population the plan analyses", "met the plan's subset conditions (baseline_pain >= 3) and ", " failed them. "} {
 		if !strings.Contains(string(md), want) {
 			t.Errorf("report.md lacks %q", want)
 		}
