@@ -256,6 +256,8 @@ func poolJobs(a *Analysis, sets []*data.Dataset, terms []fit.Term, jobs []*FitEn
 			if bad.Result != nil {
 				r := *bad.Result
 				r.Message = fmt.Sprintf("in imputed set %d: %s", badSet, r.Message)
+				// One set's maximum (a flat one's) is not the pooled fit's.
+				r.LogLik, r.AIC, r.BIC = math.NaN(), math.NaN(), math.NaN()
 				e.Result = &r
 			} else {
 				e.Err = fmt.Sprintf("in imputed set %d: %s", badSet, bad.Err)

@@ -272,7 +272,7 @@ func (r *Result) MaximumKnown() bool {
 // (StatusFlatMaximum: the maximum is finite and reached, only some
 // estimates are not determined by it).
 func (r *Result) LikelihoodUsable() bool {
-	return r.OK() || r.Status == StatusFlatMaximum
+	return r.OK() || (r.Status == StatusFlatMaximum && !math.IsNaN(r.LogLik))
 }
 
 // OK reports whether the fit has a finite maximum and converged.

@@ -177,8 +177,8 @@ func TestSeparationEvidenceSparseLevel(t *testing.T) {
 // adjacent logit of seed51 with b free across equations from its
 // probabilities' partial sums; and the flat maxima of
 // TestFlatMaximumIsFinite (the stage probit as a glm design, the
-// cumulative probit from its inequalities), whose stage log-likelihood R's
-// glm reaches too. Skipped without R or lpSolve (Debian:
+// cumulative nonparallel models of both studies from their inequalities),
+// whose stage log-likelihood R's glm reaches too. Skipped without R or lpSolve (Debian:
 // r-cran-lpsolve).
 func TestRecessionAgainstLPSolve(t *testing.T) {
 	rscript.Require(t)
@@ -201,15 +201,18 @@ func TestRecessionAgainstLPSolve(t *testing.T) {
 		}
 		rscript.WriteCSV(t, filepath.Join(dir, name), []string{"y", "x", "b", "gv", "gw", "w"}, cols)
 	}
-	flat := tinyStudy(42)
-	cols := make([][]float64, 4)
-	for i, y := range flat.Y {
-		cols[0] = append(cols[0], float64(y+1))
-		for k := 0; k < 3; k++ {
-			cols[k+1] = append(cols[k+1], flat.at(i, k))
+	flat, flat155 := tinyStudy(42), tinyStudySpread(155, 4)
+	for name, d := range map[string]*Data{"flat.csv": flat, "flat155.csv": flat155} {
+		K := len(d.Predictors)
+		cols := make([][]float64, K+1)
+		for i, y := range d.Y {
+			cols[0] = append(cols[0], float64(y+1))
+			for k := 0; k < K; k++ {
+				cols[k+1] = append(cols[k+1], d.at(i, k))
+			}
 		}
+		rscript.WriteCSV(t, filepath.Join(dir, name), append([]string{"y"}, d.Predictors...), cols)
 	}
-	rscript.WriteCSV(t, filepath.Join(dir, "flat.csv"), []string{"y", "x1", "x2", "x3"}, cols)
 	vals := rscript.Run(t, dir, filepath.Join("testdata", "rcheck", "recession.R"))
 	for _, c := range []struct {
 		name string
@@ -222,6 +225,7 @@ func TestRecessionAgainstLPSolve(t *testing.T) {
 		{"adjacent_b_nonparallel", adj, Model{Comparison: Adjacent, Link: Logit, Effects: []Effect{Parallel, Nonparallel, Parallel, Parallel}}},
 		{"flat_stage_nonparallel", flat, Model{Comparison: Stage, Link: Probit, Effects: allEffects(3, Nonparallel)}},
 		{"flat_cumulative_nonparallel", flat, Model{Comparison: Cumulative, Link: Probit, Effects: allEffects(3, Nonparallel)}},
+		{"flat155_cumulative_nonparallel", flat155, Model{Comparison: Cumulative, Link: Probit, Effects: allEffects(2, Nonparallel)}},
 	} {
 		ly, err := newLayout(c.m, c.d.J, c.d.Predictors)
 		if err != nil {

@@ -24,7 +24,11 @@ import (
 // constant is drawn again from the same generator (the seed still fixes
 // the study). Nothing else enters: the same seed gives the same rows on
 // every machine.
-func tinyStudy(seed uint64) *Data {
+func tinyStudy(seed uint64) *Data { return tinyStudySpread(seed, 2.5) }
+
+// tinyStudySpread is tinyStudy with the slopes drawn from [-spread,
+// spread] (per SD of the predictor) instead.
+func tinyStudySpread(seed uint64, spread float64) *Data {
 	rng := rand.New(rand.NewPCG(seed, 0x7469_6e79))
 	for {
 		n := 12 + rng.IntN(29)
@@ -40,7 +44,7 @@ func tinyStudy(seed uint64) *Data {
 			if rng.IntN(2) == 0 {
 				binary[k] = 0.2 + 0.6*rng.Float64()
 			}
-			slope[k] = -2.5 + 5*rng.Float64()
+			slope[k] = spread * (2*rng.Float64() - 1)
 		}
 		latent := make([]float64, n)
 		for i := 0; i < n; i++ {
@@ -117,7 +121,8 @@ func searchModels(K int) []Model {
 // TestSearchFlatMaxima is the search that found the cases of
 // TestFlatMaximumIsFinite: over seeds 1..N (N from ORDPLAN_FLAT_SEARCH;
 // the test is skipped without it), every model of searchModels is fitted
-// to tinyStudy(seed), and each fit is listed unless it is OK or its
+// to tinyStudySpread(seed, spread) (spread from ORDPLAN_FLAT_SPREAD,
+// default 2.5: tinyStudy), and each fit is listed unless it is OK or its
 // separation is proved (the programme found a direction of recession),
 // with whether the programme decides for the model (programmeDecides).
 func TestSearchFlatMaxima(t *testing.T) {
@@ -125,8 +130,12 @@ func TestSearchFlatMaxima(t *testing.T) {
 	if n <= 0 {
 		t.Skip("set ORDPLAN_FLAT_SEARCH=N to search seeds 1..N")
 	}
+	spread := 2.5
+	if s, err := strconv.ParseFloat(os.Getenv("ORDPLAN_FLAT_SPREAD"), 64); err == nil && s > 0 {
+		spread = s
+	}
 	for seed := uint64(1); seed <= uint64(n); seed++ {
-		d := tinyStudy(seed)
+		d := tinyStudySpread(seed, spread)
 		for _, m := range searchModels(len(d.Predictors)) {
 			r, err := Fit(d, m, Options{Workers: 1})
 			if err != nil {
