@@ -1497,6 +1497,14 @@ func commandLineItems(dir string) []badInput {
 			want: []string{"ordplan fit: --confidence-level must be a number strictly between 0 and 1, not 90 (for 90% intervals give 0.9)"}},
 		{id: "C7", name: "a confidence level of 1", args: fitArgs(d, "--predictors", "a", "--confidence-level", "1"), code: 2,
 			want: []string{"ordplan fit: --confidence-level must be a number strictly between 0 and 1, not 1"}},
+		{id: "C8", name: "ordplan power given a sample size twice", args: []string{"power", "--n", "100, 200,100", "--replicates", "2", "--out", filepath.Join(dir, "C8-power")}, code: 2,
+			plan: goodPlan + assumed("{a: 0.2}", ""),
+			want: []string{`ordplan power: --n: the sample size 100 is given twice (items 1 and 3 of "100, 200,100"): each size is simulated once; give every size once`},
+			check: func(t *testing.T, dir, out, errs string) {
+				if _, err := os.Stat(filepath.Join(dir, "C8-power")); !os.IsNotExist(err) {
+					t.Errorf("an output folder was made: %v", err)
+				}
+			}},
 		{id: "C4", name: "help on a topic that does not exist", args: []string{"help", "plans"}, code: 2,
 			want: []string{`ordplan help: no command or topic "plans" (commands: run, check, fit, init, rehearse, power, freeze, worker, schema, version; topic: plan)`}},
 	}

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -38,6 +39,10 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		n, err := strconv.Atoi(strings.TrimSpace(s))
 		if err != nil || n < 10 {
 			fmt.Fprintf(stderr, "ordplan power: --n: want sample sizes of at least 10, comma separated (e.g. 200,400,800), got %q\n", *sizes)
+			return exitUsage
+		}
+		if k := slices.Index(ns, n); k >= 0 {
+			fmt.Fprintf(stderr, "ordplan power: --n: the sample size %d is given twice (items %d and %d of %q): each size is simulated once; give every size once\n", n, k+1, len(ns)+1, *sizes)
 			return exitUsage
 		}
 		ns = append(ns, n)
@@ -121,11 +126,26 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 			for _, h := range s.Hypotheses {
 				parts = append(parts, fmt.Sprintf("%s: power %.3f (MC se %.3f)", h.Hypothesis, h.Power.Rate, h.Power.SE))
 			}
-			top := s.Chosen[0]
-			parts = append(parts, fmt.Sprintf("most often chosen %s (%.3f)", top.Model, top.Share.Rate))
+			parts = append(parts, mostOftenChosen(s.Chosen))
 			fmt.Fprintf(stdout, "%s n=%d: %s\n", op.Outcome, s.N, strings.Join(parts, "; "))
 		}
 	}
 	fmt.Fprintf(stdout, "report: %s\n", filepath.Join(dir, "power.html"))
 	return exitOK
+}
+
+// mostOftenChosen names the model chosen most often, or every model tied
+// at the top (in order of name, as the study sorts them), with the share.
+func mostOftenChosen(chosen []simulate.ModelShare) string {
+	var top []string
+	for _, c := range chosen {
+		if c.Share.Count == chosen[0].Share.Count {
+			top = append(top, c.Model)
+		}
+	}
+	slices.Sort(top)
+	if len(top) == 1 {
+		return fmt.Sprintf("most often chosen %s (%.3f)", top[0], chosen[0].Share.Rate)
+	}
+	return fmt.Sprintf("most often chosen, tied: %s (%.3f each)", strings.Join(top, ", "), chosen[0].Share.Rate)
 }
