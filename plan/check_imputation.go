@@ -69,7 +69,24 @@ func (d *decoder) checkImputation(p *Plan) {
 		}
 		if cm.Method == chained.NormalDraw {
 			d.checkDrawDomain(p, cm)
+			d.checkDrawValues(p, cm)
 		}
+	}
+}
+
+// checkDrawValues refuses normal draws for a column whose allowed values
+// the data dictionary lists (codes such as 0/1 or 1 to 5): a draw from a
+// normal distribution is almost never one of them, so nearly every
+// imputed value would be one the column cannot hold. (A declared range is
+// not refused: draws outside it are counted and reported.)
+func (d *decoder) checkDrawValues(p *Plan, cm ColumnModel) {
+	for _, e := range p.Dictionary {
+		if e.Column != cm.Column || e.Values == nil {
+			continue
+		}
+		d.errAt(cm.Key, "normal_draw draws %s from a normal distribution, whose values are almost never among the values %s that the data dictionary allows (%s.values): nearly every imputed value would be one the column cannot hold; impute %s by %s (the default), which imputes values observed in the data, or declare it categorical with its levels to impute it by %s or %s",
+			cm.Column, strings.Join(e.Values, ", "), e.Key, cm.Column, chained.MeanMatching, chained.Logistic, chained.Multinomial)
+		return
 	}
 }
 
