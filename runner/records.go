@@ -53,23 +53,27 @@ type OutcomeDecisions struct {
 	Categories []string `json:"categories"`
 	// Counts per category: of the rows used; on imputed data, of the
 	// outcome's observed values in the original file (not an imputed set).
-	Counts     []float64          `json:"counts"`
-	RowsRead   int                `json:"rows_read"`
-	RowsUsed   int                `json:"rows_used"`
-	Dropped    []data.DropCount   `json:"rows_dropped"`
-	NObs       float64            `json:"nobs"`
-	PartialSet []FreeSetRecord    `json:"partial_sets"`
-	Stepwise   []StepwiseJSON     `json:"stepwise,omitempty"`
-	Fits       []FitDecision      `json:"fits"`
-	Tests      []TestBlockJSON    `json:"tests"`
-	Rules      []RuleJSON         `json:"rules"`
-	Chosen     *string            `json:"chosen"`
-	Choice     string             `json:"choice"`
-	Fallback   bool               `json:"fallback"`
-	Notes      []string           `json:"notes"`
-	Final      map[string]Verdict `json:"final_verdicts"`
-	Overall    []OverallRecord    `json:"overall_fit"`
-	Lipsitz    *fit.Lipsitz       `json:"lipsitz,omitempty"`
+	Counts   []float64        `json:"counts"`
+	RowsRead int              `json:"rows_read"`
+	RowsUsed int              `json:"rows_used"`
+	Dropped  []data.DropCount `json:"rows_dropped"`
+	// RowsSubsetUnknown are the rows no subset condition excludes that
+	// miss a column one reads (data.Dataset.RowsUndecided): in Dropped
+	// under their first missing column, not among the rows outside.
+	RowsSubsetUnknown int                `json:"rows_subset_unknown,omitempty"`
+	NObs              float64            `json:"nobs"`
+	PartialSet        []FreeSetRecord    `json:"partial_sets"`
+	Stepwise          []StepwiseJSON     `json:"stepwise,omitempty"`
+	Fits              []FitDecision      `json:"fits"`
+	Tests             []TestBlockJSON    `json:"tests"`
+	Rules             []RuleJSON         `json:"rules"`
+	Chosen            *string            `json:"chosen"`
+	Choice            string             `json:"choice"`
+	Fallback          bool               `json:"fallback"`
+	Notes             []string           `json:"notes"`
+	Final             map[string]Verdict `json:"final_verdicts"`
+	Overall           []OverallRecord    `json:"overall_fit"`
+	Lipsitz           *fit.Lipsitz       `json:"lipsitz,omitempty"`
 	// PatternSplit: the Pulkstenis-Robinson tests of the chosen model.
 	PatternSplit *PatternSplitRecord `json:"pulkstenis_robinson,omitempty"`
 	// GOFPooling: on imputed data, how those tests were pooled.
@@ -203,7 +207,7 @@ func BuildDecisions(r *Result) *Decisions {
 	for _, or := range r.Outcomes {
 		read := or.AsRead()
 		od := OutcomeDecisions{Outcome: or.Outcome.Column, Categories: or.Data.Categories, Counts: or.Data.Counts,
-			RowsRead: read.RowsRead, RowsUsed: read.N, Dropped: nonNilDrops(read.Dropped), NObs: fit.Observations(read.N, read.NObs(), sampling),
+			RowsRead: read.RowsRead, RowsUsed: read.N, Dropped: nonNilDrops(read.Dropped), RowsSubsetUnknown: read.RowsUndecided, NObs: fit.Observations(read.N, read.NObs(), sampling),
 			Choice: or.Choice, Fallback: or.Fallback, Notes: nonNil(or.Notes), Final: map[string]Verdict{}}
 		if or.Observed != nil {
 			od.Counts = or.Observed.Counts

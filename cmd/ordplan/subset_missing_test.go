@@ -141,8 +141,9 @@ func TestSubsetColumnMissing(t *testing.T) {
 		}
 		var dec struct {
 			Outcomes []struct {
-				RowsUsed int `json:"rows_used"`
-				Dropped  []struct {
+				RowsUsed    int `json:"rows_used"`
+				RowsUnknown int `json:"rows_subset_unknown"`
+				Dropped     []struct {
 					Column string `json:"column"`
 					Rows   int    `json:"rows"`
 					Subset bool   `json:"subset"`
@@ -160,8 +161,8 @@ func TestSubsetColumnMissing(t *testing.T) {
 			byCol[d.Column] = d.Rows
 			sum += d.Rows
 		}
-		if o.RowsUsed != used || byCol["outside the subset age >= 18"] != outside || sum != 300-used {
-			t.Errorf("%s: decisions.json: used %d, dropped %v; want used %d, %d outside, %d dropped in all", mode, o.RowsUsed, o.Dropped, used, outside, 300-used)
+		if o.RowsUsed != used || byCol["outside the subset age >= 18"] != outside || sum != 300-used || o.RowsUnknown != unknown {
+			t.Errorf("%s: decisions.json: used %d, dropped %v, subset unknown %d; want used %d, %d outside, %d dropped in all, %d unknown", mode, o.RowsUsed, o.Dropped, o.RowsUnknown, used, outside, 300-used, unknown)
 		}
 	}
 }
