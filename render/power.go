@@ -2,6 +2,7 @@ package render
 
 import (
 	"fmt"
+	"strconv"
 	"strings"
 
 	"github.com/go-echarts/go-echarts/v2/charts"
@@ -46,11 +47,13 @@ func PowerOutputs(pr *simulate.PowerResult, reg *lock.Status) (map[string][]byte
 	if len(pr.Missing) > 0 {
 		d.p("%s In every replicate the plan's `data.missing` handled them as it will handle the real data's, so the rates below count the information the missing values take away.", simulatedMissingText(pr.Missing))
 	}
+	writePowerSizes(d, pr)
 	d.p("Every rate is a share of the %d replicates of a size, with its Monte Carlo standard error sqrt(p(1-p)/R) in brackets.", pr.Replicates)
 	for _, op := range pr.Outcomes {
 		d.h(2, "Outcome "+mdCode(op.Outcome))
 		writePowerHypotheses(d, op)
 		writePowerModels(d, op, pr.Generator)
+		writePowerNone(d, op)
 		writePowerProblems(d, op)
 	}
 	d.h(2, "Assumptions and limits")
@@ -194,6 +197,71 @@ func writePowerProblems(d *doc, op simulate.OutcomePower) {
 			d.p("At n = %d the first failed replicate said: %s", s.N, strings.ReplaceAll(s.FirstFailure, "\n", "; "))
 		}
 	}
+}
+
+// writePowerSizes says what a sample size n is: the rows drawn, and with
+// a subset how many of them it kept (mean, smallest and largest over the
+// replicates), in the rehearsal's words.
+func writePowerSizes(d *doc, pr *simulate.PowerResult) {
+	if len(pr.Subset) == 0 {
+		d.p("A sample size n is the number of rows drawn from the assumptions; the plan has no subset, so every row is analysed (less any incomplete rows `data.missing` drops).")
+		return
+	}
+	var kept []string
+	for _, k := range pr.SubsetKept {
+		if k.Replicates == 0 {
+			kept = append(kept, fmt.Sprintf("n = %d: none of the replicates could be read", k.N))
+			continue
+		}
+		kept = append(kept, fmt.Sprintf("n = %d: %s (%d to %d)", k.N, strconv.FormatFloat(k.Mean, 'f', 1, 64), k.Min, k.Max))
+	}
+	d.p("A sample size n is the number of rows drawn from the assumptions, before the plan's subset (%s); the plan analyses only the rows the subset keeps. The subset kept, per replicate, on average (smallest to largest): %s. The stated category proportions describe the rows the subset keeps, the population the plan analyses: the cutpoints were solved, and the design's constants set, on simulated rows that meet the subset.",
+		strings.Join(pr.Subset, "; "), strings.Join(kept, "; "))
+}
+
+// writePowerNone says how often no model was chosen, and why, from each
+// replicate's decision log.
+func writePowerNone(d *doc, op simulate.OutcomePower) {
+	none := false
+	for _, s := range op.Sizes {
+		none = none || s.NoModel.Count > 0
+	}
+	if !none {
+		d.p("Every replicate of every size chose a model.")
+		return
+	}
+	d.p("Replicates where no model was chosen (`(none)` above), by what left the grid empty in each replicate's decision log: the rule that rejected the last candidates left after the rules before it (its place among the rules and its line in the plan), or another cause. A hypothesis counts as not rejected in them.")
+	head := []string{"No model chosen because"}
+	for _, s := range op.Sizes {
+		head = append(head, fmt.Sprintf("n = %d", s.N))
+	}
+	causes := []string{}
+	for _, s := range op.Sizes {
+		for _, c := range s.EmptiedBy {
+			if !contains(causes, c.Cause) {
+				causes = append(causes, c.Cause)
+			}
+		}
+	}
+	total := []string{"any cause"}
+	for _, s := range op.Sizes {
+		total = append(total, fmtRate(s.NoModel))
+	}
+	rows := [][]string{total}
+	for _, c := range causes {
+		row := []string{c}
+		for _, s := range op.Sizes {
+			cell := "0"
+			for _, e := range s.EmptiedBy {
+				if e.Cause == c {
+					cell = fmtRate(e.Share)
+				}
+			}
+			row = append(row, cell)
+		}
+		rows = append(rows, row)
+	}
+	d.captioned("Replicates where no model was chosen, by cause").table(head, rows)
 }
 
 func contains(xs []string, s string) bool {

@@ -58,3 +58,35 @@ func TestPowerReportWords(t *testing.T) {
 		})
 	}
 }
+
+// The report says what n is, how many rows the subset kept at each size,
+// and why no model was chosen where none was.
+func TestPowerReportSubsetAndNoModel(t *testing.T) {
+	rate := func(c, of int) simulate.Rate { return simulate.Rate{Count: c, Of: of, Rate: float64(c) / float64(of)} }
+	pr := &simulate.PowerResult{Simulated: true, PlanFile: "p.yaml", Generator: "cumulative logit", Replicates: 4, Alpha: 0.05, Sizes: []int{40, 300},
+		Subset: []string{"age >= 45"}, SubsetKept: []simulate.KeptRows{{N: 40, Mean: 18.5, Min: 18, Max: 20, Replicates: 4}, {N: 300, Mean: 148.75, Min: 142, Max: 158, Replicates: 4}},
+		Outcomes: []simulate.OutcomePower{{Outcome: "y", Sizes: []simulate.SizeResult{
+			{N: 40, NoModel: rate(4, 4), Chosen: []simulate.ModelShare{{Model: "(none)", Share: rate(4, 4)}},
+				EmptiedBy: []simulate.NoneShare{{Cause: "reject_if_sparse (rule 3, line 52) rejected the last candidates", Share: rate(3, 4)}, {Cause: "the plan could not be run on the replicate", Share: rate(1, 4)}}},
+			{N: 300, NoModel: rate(0, 4), Chosen: []simulate.ModelShare{{Model: "cumulative/parallel/logit", Share: rate(4, 4)}}}}}}}
+	files, err := PowerOutputs(pr, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	md := string(files["power.md"])
+	for _, w := range []string{
+		"A sample size n is the number of rows drawn from the assumptions, before the plan's subset (age >= 45); the plan analyses only the rows the subset keeps. The subset kept, per replicate, on average (smallest to largest): n = 40: 18.5 (18 to 20); n = 300: 148.8 (142 to 158).",
+		"| No model chosen because | n = 40 | n = 300 |",
+		"| any cause | 1.000 (0.000) | 0.000 (0.000) |",
+		"| reject_if_sparse (rule 3, line 52) rejected the last candidates | 0.750 (0.000) | 0 |",
+	} {
+		if !strings.Contains(md, w) {
+			t.Errorf("power.md lacks %q:\n%s", w, md)
+		}
+	}
+	pr.Subset, pr.SubsetKept = nil, nil
+	files, _ = PowerOutputs(pr, nil)
+	if md := string(files["power.md"]); !strings.Contains(md, "A sample size n is the number of rows drawn from the assumptions; the plan has no subset, so every row is analysed") {
+		t.Errorf("without a subset:\n%s", md)
+	}
+}

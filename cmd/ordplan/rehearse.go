@@ -73,7 +73,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 		rows = *n
 	}
 	var buf bytes.Buffer
-	missing, err := sim.WriteCounted(&buf, rows, 0)
+	written, err := sim.WriteCounted(&buf, rows, 0)
 	if err != nil {
 		return fail(stderr, err)
 	}
@@ -113,7 +113,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 			res.Simulated.Subset = append(res.Simulated.Subset, c.String())
 		}
 	}
-	res.Simulated.Missing = sim.MissingRecord(missing, analysed)
+	res.Simulated.Missing = sim.MissingRecord(written.Missing, analysed)
 	dec := runner.BuildDecisions(res)
 	files, err := render.Outputs(res, dec, nil)
 	if err != nil {

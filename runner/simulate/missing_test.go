@@ -51,7 +51,8 @@ func TestMissingnessRecovered(t *testing.T) {
 	}
 	const n = 200_000
 	var buf bytes.Buffer
-	counts, err := sim.WriteCounted(&buf, n, 5)
+	written, err := sim.WriteCounted(&buf, n, 5)
+	counts := written.Missing
 	if err != nil {
 		t.Fatal(err)
 	}

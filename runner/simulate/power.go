@@ -62,6 +62,23 @@ type HypothesisPower struct {
 	Untested int `json:"untested"`
 }
 
+// NoneShare is how often one cause left a replicate without a chosen
+// model, as a share of all replicates of the size.
+type NoneShare struct {
+	Cause string `json:"cause"`
+	Share Rate   `json:"replicates"`
+}
+
+// KeptRows is how many of the n rows drawn at one size the plan's subset
+// kept, over the replicates that could be read.
+type KeptRows struct {
+	N          int     `json:"n"`
+	Mean       float64 `json:"mean"`
+	Min        int     `json:"min"`
+	Max        int     `json:"max"`
+	Replicates int     `json:"replicates"`
+}
+
 // ModelShare is how often a candidate model was chosen.
 type ModelShare struct {
 	Model string `json:"model"` // or "(none)"
@@ -73,6 +90,11 @@ type SizeResult struct {
 	N          int               `json:"n"`
 	Hypotheses []HypothesisPower `json:"hypotheses"`
 	Chosen     []ModelShare      `json:"chosen_models"`
+	// NoModel: replicates where no model was chosen (failed runs
+	// included), and EmptiedBy why, from each replicate's decision log:
+	// the rule that rejected the last candidates, or another cause.
+	NoModel   Rate        `json:"no_model_chosen"`
+	EmptiedBy []NoneShare `json:"no_model_because,omitempty"`
 	// Replicates with at least one candidate fit that has no finite
 	// maximum (separation), or that did not converge.
 	Separation   Rate `json:"separation"`
@@ -116,21 +138,29 @@ type PowerResult struct {
 	// (inference.multiplicity: holm or benjamini_hochberg; "" for none):
 	// a hypothesis is rejected when its adjusted p-value is below Alpha,
 	// as the plan's run decides.
-	Multiplicity string         `json:"multiplicity,omitempty"`
-	Sizes        []int          `json:"sizes"`
-	Outcomes     []OutcomePower `json:"outcomes"`
-	Version      string         `json:"version"`
+	Multiplicity string `json:"multiplicity,omitempty"`
+	Sizes        []int  `json:"sizes"`
+	// SizeMeans says what a size is: the rows drawn from the assumptions,
+	// before the plan's subset (Subset, its conditions), which kept
+	// SubsetKept rows at each size.
+	SizeMeans  string         `json:"n_means"`
+	Subset     []string       `json:"subset,omitempty"`
+	SubsetKept []KeptRows     `json:"subset_kept,omitempty"`
+	Outcomes   []OutcomePower `json:"outcomes"`
+	Version    string         `json:"version"`
 }
 
 // replicate is what one run gave, per outcome.
 type replicate struct {
 	err      string
+	kept     int // rows that meet the plan's subset (-1: none written)
 	outcomes []repOutcome
 }
 
 type repOutcome struct {
 	chosen       string
-	rejected     []int // per hypothesis: 1 rejected, 0 not, -1 untested
+	emptied      string // with no model chosen: why (noneCause)
+	rejected     []int  // per hypothesis: 1 rejected, 0 not, -1 untested
 	separation   bool
 	notConverged bool
 }
@@ -168,6 +198,13 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 		res.Correlations = append(res.Correlations, fmt.Sprintf("%s, %s: r = %g", c.A, c.B, c.R))
 	}
 	res.Missing = sim.MissingRecord(nil, 0)
+	res.SizeMeans = "rows drawn from the assumptions; every row is analysed (less any incomplete rows data.missing drops)"
+	if len(p.Subset) > 0 {
+		res.SizeMeans = "rows drawn from the assumptions, before the plan's subset: the rows analysed are those the subset keeps (subset_kept; less any incomplete rows data.missing drops)"
+		for _, c := range p.Subset {
+			res.Subset = append(res.Subset, c.String())
+		}
+	}
 	for _, oc := range p.Outcomes {
 		res.Outcomes = append(res.Outcomes, generating(p, oc, sim))
 	}
@@ -200,6 +237,9 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 			}(w)
 		}
 		wg.Wait()
+		if len(p.Subset) > 0 {
+			res.SubsetKept = append(res.SubsetKept, keptRows(n, reps))
+		}
 		for oi := range res.Outcomes {
 			res.Outcomes[oi].Sizes = append(res.Outcomes[oi].Sizes, summarize(p, n, reps, oi))
 		}
@@ -211,11 +251,12 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 func runReplicate(p *plan.Plan, sim *Sim, n, r int, path string, opt PowerOptions) replicate {
 	alpha := opt.Alpha
 	var buf bytes.Buffer
-	if err := sim.Write(&buf, n, uint64(r)); err != nil {
-		return replicate{err: err.Error()}
+	written, err := sim.WriteCounted(&buf, n, uint64(r))
+	if err != nil {
+		return replicate{err: err.Error(), kept: -1}
 	}
 	if err := os.WriteFile(path, buf.Bytes(), 0o644); err != nil {
-		return replicate{err: err.Error()}
+		return replicate{err: err.Error(), kept: -1}
 	}
 	q := *p
 	name := fmt.Sprintf("simulated n=%d replicate %d", n, r+1)
@@ -230,13 +271,15 @@ func runReplicate(p *plan.Plan, sim *Sim, n, r int, path string, opt PowerOption
 	if err != nil {
 		// The replicate's temporary file is gone when the report is read:
 		// name the replicate instead.
-		return replicate{err: strings.ReplaceAll(err.Error(), path, name)}
+		return replicate{err: strings.ReplaceAll(err.Error(), path, name), kept: written.Kept}
 	}
-	var out replicate
+	out := replicate{kept: written.Kept}
 	for _, or := range res.Outcomes {
 		ro := repOutcome{rejected: make([]int, len(p.Inference.Hypotheses))}
 		if or.Chosen != nil {
 			ro.chosen = or.Chosen.ID
+		} else {
+			ro.emptied = noneCause(or)
 		}
 		for _, f := range or.Fits {
 			if f.Auxiliary || f.Result == nil {
@@ -275,6 +318,7 @@ func summarize(p *plan.Plan, n int, reps []replicate, oi int) SizeResult {
 	R := len(reps)
 	sr := SizeResult{N: n}
 	counts := map[string]int{}
+	causes := map[string]int{}
 	sep, nc, failed := 0, 0, 0
 	rej := make([]int, len(p.Inference.Hypotheses))
 	untested := make([]int, len(p.Inference.Hypotheses))
@@ -285,6 +329,7 @@ func summarize(p *plan.Plan, n int, reps []replicate, oi int) SizeResult {
 				sr.FirstFailure = rp.err
 			}
 			counts["(none)"]++
+			causes["the plan could not be run on the replicate"]++
 			for hi := range untested {
 				untested[hi]++
 			}
@@ -294,6 +339,7 @@ func summarize(p *plan.Plan, n int, reps []replicate, oi int) SizeResult {
 		c := ro.chosen
 		if c == "" {
 			c = "(none)"
+			causes[ro.emptied]++
 		}
 		counts[c]++
 		if ro.separation {
@@ -314,21 +360,78 @@ func summarize(p *plan.Plan, n int, reps []replicate, oi int) SizeResult {
 	for hi, h := range p.Inference.Hypotheses {
 		sr.Hypotheses = append(sr.Hypotheses, HypothesisPower{Hypothesis: h.Text, Line: h.Line, Power: rate(rej[hi], R), Untested: untested[hi]})
 	}
-	models := make([]string, 0, len(counts))
-	for m := range counts {
-		models = append(models, m)
-	}
-	sort.Slice(models, func(i, j int) bool {
-		if counts[models[i]] != counts[models[j]] {
-			return counts[models[i]] > counts[models[j]]
-		}
-		return models[i] < models[j]
-	})
-	for _, m := range models {
+	for _, m := range byCount(counts) {
 		sr.Chosen = append(sr.Chosen, ModelShare{Model: m, Share: rate(counts[m], R)})
 	}
 	sr.Separation, sr.NotConverged, sr.Failed = rate(sep, R), rate(nc, R), rate(failed, R)
+	sr.NoModel = rate(counts["(none)"], R)
+	for _, c := range byCount(causes) {
+		sr.EmptiedBy = append(sr.EmptiedBy, NoneShare{Cause: c, Share: rate(causes[c], R)})
+	}
 	return sr
+}
+
+// byCount gives the keys of counts, the largest count first, ties in
+// order of name.
+func byCount(counts map[string]int) []string {
+	keys := make([]string, 0, len(counts))
+	for k := range counts {
+		keys = append(keys, k)
+	}
+	sort.Slice(keys, func(i, j int) bool {
+		if counts[keys[i]] != counts[keys[j]] {
+			return counts[keys[i]] > counts[keys[j]]
+		}
+		return keys[i] < keys[j]
+	})
+	return keys
+}
+
+// noneCause says, from a run's decision log, why it chose no model: the
+// first rule after which no candidate was left (its kind, its place among
+// the rules and its plan line), or that no candidate could be fitted, or
+// the run's own words (a plan without a choosing rule).
+func noneCause(or *runner.OutcomeResult) string {
+	fitted := false
+	for _, f := range or.Fits {
+		if !f.Auxiliary && f.Err == "" && f.Result != nil {
+			fitted = true
+		}
+	}
+	if !fitted {
+		return "no candidate could be fitted"
+	}
+	for i, ro := range or.Rules {
+		if len(ro.Verdicts) > 0 && !slices.ContainsFunc(ro.Verdicts, func(v runner.Verdict) bool { return v.Kept }) {
+			return fmt.Sprintf("%s (rule %d, line %d) rejected the last candidates", ro.Rule.Kind, i+1, ro.Rule.Line)
+		}
+	}
+	if or.Choice != "" {
+		return or.Choice
+	}
+	return "no model chosen"
+}
+
+// keptRows sums up how many rows met the subset in the replicates of
+// size n that were written (those the plan failed on too).
+func keptRows(n int, reps []replicate) KeptRows {
+	k := KeptRows{N: n}
+	sum := 0
+	for _, rp := range reps {
+		if rp.kept < 0 {
+			continue
+		}
+		if k.Replicates == 0 || rp.kept < k.Min {
+			k.Min = rp.kept
+		}
+		k.Max = max(k.Max, rp.kept)
+		sum += rp.kept
+		k.Replicates++
+	}
+	if k.Replicates > 0 {
+		k.Mean = float64(sum) / float64(k.Replicates)
+	}
+	return k
 }
 
 // generating names the candidate with the structure that generated the

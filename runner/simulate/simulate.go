@@ -955,16 +955,25 @@ func (s *Sim) Write(w io.Writer, n int, replicate uint64) error {
 	return err
 }
 
-// WriteCounted is Write, giving also how many values of each column of
-// Missing it wrote as missing in the rows the plan's subset does not
-// exclude, as the reader judges them (notOutside): the rows that meet it,
-// and those whose subset column was written missing. The
+// Written counts what Write wrote. Missing[i] is how many values of
+// column Missing[i] it wrote as missing in the rows the plan's subset
+// does not exclude, as the reader judges them (notOutside): the rows that
+// meet it, and those whose subset column was written missing. Kept is how
+// many rows meet the subset, their subset columns written (all n rows
+// without a subset), as the reader counts them.
+type Written struct {
+	Missing []int
+	Kept    int
+}
+
+// WriteCounted is Write, giving also what it wrote (Written). The
 // missing values are drawn from a stream of their own, so the values
 // that stay are those of the same data set without missingness.
-func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) ([]int, error) {
+func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) (Written, error) {
 	rng := rand.New(rand.NewPCG(s.seed, uint64(n)<<32^replicate^0x5eed))
 	mrng := rand.New(rand.NewPCG(s.seed, uint64(n)<<32^replicate^0x6d155))
 	counts := make([]int, len(s.Missing))
+	met := 0
 	ys := make([]int, len(s.Outcomes))
 	bw := bufio.NewWriter(w)
 	h := s.Header()
@@ -992,7 +1001,7 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) ([]int, error) 
 			o, c := &s.Outcomes[oi], &sc[oi]
 			o.raw(&r, c.raw)
 			if err := o.Design.Row(c.raw, c.x); err != nil {
-				return nil, fmt.Errorf("%s: simulated row %d: %v", s.Plan.Path, i+1, err)
+				return Written{}, fmt.Errorf("%s: simulated row %d: %v", s.Plan.Path, i+1, err)
 			}
 			o.eta(c.x, c.e)
 			for m := range c.L {
@@ -1004,7 +1013,7 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) ([]int, error) 
 				if pj < 0 && kept {
 					// The calibration sample did not reach these predictor
 					// values; a row there must not get a category anyway.
-					return nil, fmt.Errorf("%s: assumptions.outcomes.%s.nonparallel: simulated row %d gets a negative probability of category %s: the stated effects make neighbouring boundaries cross at its predictor values; make the effects at neighbouring boundaries closer or give the predictors a range",
+					return Written{}, fmt.Errorf("%s: assumptions.outcomes.%s.nonparallel: simulated row %d gets a negative probability of category %s: the stated effects make neighbouring boundaries cross at its predictor values; make the effects at neighbouring boundaries closer or give the predictors a range",
 						s.Plan.Path, o.Column, i+1, o.Categories[j])
 				}
 				valid = valid && pj >= 0
@@ -1049,6 +1058,11 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) ([]int, error) 
 				counts[mi]++
 			}
 		}
+		if kept && !slices.ContainsFunc(missed, func(mi int) bool {
+			return s.Missing[mi].outcome < 0 && slices.Contains(s.keepCol, s.Missing[mi].pred)
+		}) {
+			met++
+		}
 		if s.Weights != "" {
 			cells = append(cells, "1")
 		}
@@ -1066,7 +1080,7 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) ([]int, error) 
 		}
 		bw.WriteByte('\n')
 	}
-	return counts, bw.Flush()
+	return Written{Missing: counts, Kept: met}, bw.Flush()
 }
 
 func csvCell(s string) string {

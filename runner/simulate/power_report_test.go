@@ -1,0 +1,101 @@
+package simulate
+
+import (
+	"bytes"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+// A power study of a plan with a subset says what n is (the rows drawn,
+// before the subset) and how many rows the subset kept at each size: the
+// mean, smallest and largest over the replicates equal the counts of
+// rows with age >= 30 in the replicates' own files, written again here
+// and read as text.
+func TestPowerCountsRowsTheSubsetKept(t *testing.T) {
+	p := parsePlan(t, subsetPopPlan)
+	sizes := []int{60, 200}
+	const R = 5
+	res, err := Power(p, PowerOptions{Sizes: sizes, Replicates: R, Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(res.Subset) != 1 || res.Subset[0] != "age >= 30" {
+		t.Errorf("subset %q", res.Subset)
+	}
+	if !strings.Contains(res.SizeMeans, "before the plan's subset") {
+		t.Errorf("n_means %q", res.SizeMeans)
+	}
+	if len(res.SubsetKept) != len(sizes) {
+		t.Fatalf("subset_kept %+v", res.SubsetKept)
+	}
+	sim, err := New(p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, n := range sizes {
+		lo, hi, sum := n, 0, 0
+		for r := 0; r < R; r++ {
+			var buf bytes.Buffer
+			if err := sim.Write(&buf, n, uint64(r)); err != nil {
+				t.Fatal(err)
+			}
+			k := 0
+			for _, l := range strings.Split(strings.TrimSpace(buf.String()), "\n")[1:] {
+				if parseNum(t, strings.Split(l, ",")[1]) >= 30 {
+					k++
+				}
+			}
+			lo, hi, sum = min(lo, k), max(hi, k), sum+k
+		}
+		got := res.SubsetKept[i]
+		if got.N != n || got.Min != lo || got.Max != hi || got.Mean != float64(sum)/R || got.Replicates != R {
+			t.Errorf("n = %d: kept %+v, counted min %d max %d mean %g", n, got, lo, hi, float64(sum)/R)
+		}
+		if !(got.Max < n) {
+			t.Errorf("n = %d: the subset kept every row (%+v): the test shows nothing", n, got)
+		}
+	}
+	// Without a subset n is every row, and nothing is counted.
+	plain, err := Power(parsePlan(t, waldPlan), PowerOptions{Sizes: []int{40}, Replicates: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if plain.Subset != nil || plain.SubsetKept != nil || !strings.Contains(plain.SizeMeans, "every row is analysed") {
+		t.Errorf("without a subset: %q %+v %q", plain.Subset, plain.SubsetKept, plain.SizeMeans)
+	}
+}
+
+// Where no model is chosen, the study says how often and which rule
+// emptied the grid, from each replicate's decision log. Here the sparse
+// rule asks for 60 rows per parameter; the plan's model has two (one
+// cutpoint, one slope), so every replicate of 40 rows is emptied by it
+// and no replicate of 400 rows is.
+func TestPowerSaysWhyNoModelWasChosen(t *testing.T) {
+	src := strings.Replace(waldPlan, "  - reject_unconverged: true\n", "  - reject_unconverged: true\n  - reject_if_sparse: {per_parameter: 60}\n", 1)
+	if src == waldPlan {
+		t.Fatal("plan not changed")
+	}
+	p := parsePlan(t, src)
+	line := 0
+	for _, r := range p.Rules {
+		if r.Kind == "reject_if_sparse" {
+			line = r.Line
+		}
+	}
+	res, err := Power(p, PowerOptions{Sizes: []int{40, 400}, Replicates: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	small, large := res.Outcomes[0].Sizes[0], res.Outcomes[0].Sizes[1]
+	if small.NoModel.Count != 3 || small.NoModel.Rate != 1 {
+		t.Errorf("n = 40: no model in %+v", small.NoModel)
+	}
+	want := "reject_if_sparse (rule 2, line " + strconv.Itoa(line) + ") rejected the last candidates"
+	if len(small.EmptiedBy) != 1 || small.EmptiedBy[0].Cause != want || small.EmptiedBy[0].Share.Count != 3 {
+		t.Errorf("n = 40: causes %+v, want %q in all 3", small.EmptiedBy, want)
+	}
+	if large.NoModel.Count != 0 || large.EmptiedBy != nil {
+		t.Errorf("n = 400: no model %+v, causes %+v", large.NoModel, large.EmptiedBy)
+	}
+}
