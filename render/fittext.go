@@ -25,6 +25,9 @@ type DataSummary struct {
 	// Sampling: the weights are sampling weights, whose sum is no count
 	// of observations.
 	Sampling bool
+	// Warnings are said after the table of estimates (too few clusters
+	// for clustered errors).
+	Warnings []string
 }
 
 // ParamLabel adds the category boundary to the names of boundary
@@ -64,7 +67,11 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 		fmt.Fprintf(tw, "AIC / BIC\t%s / %s\n", numfmt.Fixed(r.AIC, 3), numfmt.Fixed(r.BIC, 3))
 	}
 	if r.OK() {
-		fmt.Fprintf(tw, "Standard errors\t%s\n", r.CovType.Label())
+		cov := r.CovType.Label()
+		if r.CovType == fit.Clustered {
+			cov += fmt.Sprintf(", %d clusters", r.Clusters)
+		}
+		fmt.Fprintf(tw, "Standard errors\t%s\n", cov)
 	}
 	if err := tw.Flush(); err != nil {
 		return err
@@ -91,6 +98,9 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 		fmt.Fprintf(w, "Warning: %s.\n", r.Message)
 	}
 	if n := r.CollinearNote(func(s string) string { return s }); n != "" {
+		fmt.Fprintf(w, "Warning: %s.\n", n)
+	}
+	for _, n := range ds.Warnings {
 		fmt.Fprintf(w, "Warning: %s.\n", n)
 	}
 	return nil

@@ -197,15 +197,11 @@ func independenceSentence(r *runner.Result) string {
 	case pol.Covariance == fit.Clustered:
 		g := 0
 		for _, or := range r.Outcomes {
-			seen := map[string]bool{}
-			for _, c := range or.Data.Cluster {
-				seen[c] = true
-			}
-			g = max(g, len(seen))
+			g = max(g, runner.ClusterCount(or.Data))
 		}
 		s := fmt.Sprintf("Each model's likelihood treats the observations as independent given the predictors; it assumes %s The standard errors, intervals, Wald tests and the plan's hypotheses allow for correlation within the %d clusters of %s (cluster-robust sandwich), but the likelihood-ratio, score, Brant and Wolfe-Gould tests and AIC and BIC do not: they take every observation as independent, and reject too often when observations of a cluster are alike.", shape, g, mdCode(r.Plan.Data.Cluster))
-		if g < 40 {
-			s += fmt.Sprintf(" With %d clusters (fewer than about 40) the cluster-robust errors themselves tend to be too small.", g)
+		if g < fit.FewClusters {
+			s += fmt.Sprintf(" With %d clusters (fewer than about %d) the cluster-robust errors themselves tend to be too small.", g, fit.FewClusters)
 		}
 		return s
 	case pol.Sampling:

@@ -58,7 +58,7 @@ rules:
 	for _, c := range cases {
 		dir := t.TempDir()
 		write(dir, c.empty)
-		err := CheckData(planIn(t, dir, src))
+		_, err := CheckData(planIn(t, dir, src))
 		if err == nil || !strings.Contains(strings.ReplaceAll(err.Error(), dir+string(filepath.Separator), ""), c.want) {
 			t.Errorf("%s: got\n%v\nwant\n%s", c.name, err, c.want)
 		}
@@ -67,7 +67,7 @@ rules:
 	// named at its plan place.
 	dir := t.TempDir()
 	write(dir, func(string, string) bool { return false })
-	err := CheckData(planIn(t, dir, strings.Replace(src, "predictors: [reg, grade, x,", "subset: [{column: site, one_of: [a]}]\npredictors: [reg, grade, x, z,", 1)))
+	_, err := CheckData(planIn(t, dir, strings.Replace(src, "predictors: [reg, grade, x,", "subset: [{column: site, one_of: [a]}]\npredictors: [reg, grade, x, z,", 1)))
 	want := `p.yaml:8:29: predictors[3]: term "z" is constant (every row used has 1): it cannot be estimated alongside the cutpoints; remove it (data d.csv, outcome "y")`
 	if err == nil || !strings.Contains(strings.ReplaceAll(err.Error(), dir+string(filepath.Separator), ""), want) {
 		t.Errorf("constant term: got\n%v\nwant\n%s", err, want)

@@ -58,6 +58,8 @@ type CovarianceJSON struct {
 	Kind       fit.Covariance `json:"kind"`
 	Parameters []string       `json:"parameters"`
 	Matrix     [][]*float64   `json:"matrix"` // null where not defined
+	// Clusters: the number of clusters of a cluster-robust covariance.
+	Clusters int `json:"clusters,omitempty"`
 }
 
 // StartJSON is one start of a constrained fit's search.
@@ -120,7 +122,7 @@ func Record(r *fit.Result) FitRecord {
 		rec.StdErrors[n] = r.StdErrors[i]
 	}
 	P := len(r.ParamNames)
-	cov := &CovarianceJSON{Kind: r.CovType, Parameters: r.ParamNames, Matrix: make([][]*float64, P)}
+	cov := &CovarianceJSON{Kind: r.CovType, Parameters: r.ParamNames, Matrix: make([][]*float64, P), Clusters: r.Clusters}
 	for i := range cov.Matrix {
 		cov.Matrix[i] = make([]*float64, P)
 		for j := range cov.Matrix[i] {

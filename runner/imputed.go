@@ -609,7 +609,7 @@ func pooledEqualSlopes(np *FitEntry, cols []string) fit.Test {
 // equal at every boundary in the pooled fit res with Rubin's rules pl.
 func pooledEqualSlopesOf(res *fit.Result, pl *impute.Pooled, cols []string) fit.Test {
 	P := len(res.Estimates)
-	var C []float64
+	var rows [][]float64
 	for _, c := range cols {
 		first := slices.Index(res.ParamNames, c+"[1]")
 		if first < 0 {
@@ -618,10 +618,26 @@ func pooledEqualSlopesOf(res *fit.Result, pl *impute.Pooled, cols []string) fit.
 		for m := 0; m+1 < res.J-1; m++ {
 			row := make([]float64, P)
 			row[first+m], row[first+m+1] = 1, -1
-			C = append(C, row...)
+			rows = append(rows, row)
 		}
 	}
-	t, err := impute.D1(pl, C, nil)
+	return pooledWald(res, pl, rows, nil)
+}
+
+// pooledWald is the D1 test of rows theta = c0 (nil: zeros) in the pooled
+// fit res with Rubin's rules pl, refused as a Wald test of one data set is
+// when the pooled covariance of the restrictions does not have full rank
+// or, under cluster-robust errors, when there are more restrictions than
+// the clusters less one (fit.Result.WaldDefined).
+func pooledWald(res *fit.Result, pl *impute.Pooled, rows [][]float64, c0 []float64) fit.Test {
+	if err := res.WaldDefined(rows); err != nil {
+		return missingTest(fit.TestWald, err.Error())
+	}
+	var C []float64
+	for _, row := range rows {
+		C = append(C, row...)
+	}
+	t, err := impute.D1(pl, C, c0)
 	if err != nil {
 		return missingTest(fit.TestWald, err.Error())
 	}
@@ -688,6 +704,9 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 	}
 	or := &OutcomeResult{Outcome: oc, Data: &ds, Observed: run.observed, FitData: run.Sets[0], Design: dz, Terms: termsOf(dz), dataOptions: r.Options, Imputed: run}
 	or.Notes = append(append(or.Notes, ds.Notes...), dz.Notes...)
+	if w := an.FewClusters(r, &ds); w != "" {
+		or.Notes = append(or.Notes, w)
+	}
 	if run.Chained != nil {
 		for _, n := range run.Chained.Notes {
 			or.Notes = append(or.Notes, "Imputation: "+n)
@@ -796,15 +815,7 @@ func pooledContrasts(f *FitEntry, hy *fit.Hypothesis, level float64) []fit.Contr
 }
 
 func pooledLinear(f *FitEntry, hy *fit.Hypothesis) fit.Test {
-	var C []float64
-	for _, row := range hy.R {
-		C = append(C, row...)
-	}
-	t, err := impute.D1(f.Pooled, C, hy.C)
-	if err != nil {
-		return missingTest(fit.TestWald, err.Error())
-	}
-	return fTest(fit.TestWald, t, math.NaN(), math.NaN())
+	return pooledWald(f.Result, f.Pooled, hy.R, hy.C)
 }
 
 // matchObserved checks that every imputed set was made from the original

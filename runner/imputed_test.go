@@ -369,7 +369,7 @@ func TestImputedBadInput(t *testing.T) {
 			t.Errorf("%s: got %v\nwant %s", c.data, err, c.want)
 		}
 		if p != nil {
-			if err := CheckData(p); err == nil || !strings.Contains(err.Error(), c.want) {
+			if _, err := CheckData(p); err == nil || !strings.Contains(err.Error(), c.want) {
 				t.Errorf("check %s: got %v\nwant %s", c.data, err, c.want)
 			}
 		}

@@ -123,7 +123,7 @@ func (c CovariancePolicy) Sandwich(ds *data.Dataset, d *fit.Data) func(*fit.Resu
 		if err != nil {
 			return fmt.Errorf("%s: sandwich covariance: %w", r.Name, err)
 		}
-		r.UseCovariance(V, info.Type)
+		r.UseCovariance(V, info)
 		return nil
 	}
 }
@@ -335,12 +335,43 @@ func (a *Analysis) Clusters(r Reading, ds *data.Dataset) error {
 			return nil
 		}
 	}
-	key := "--cluster"
+	return fmt.Errorf("%s: %s: column %q holds one cluster id (%q) in the %d rows used: cluster-robust errors need at least 2 clusters, and about %d to be trusted; with one cluster use the sandwich for independent rows",
+		a.Source, a.clusterKey(), r.Options.Cluster, ds.Cluster[0], ds.N, fit.FewClusters)
+}
+
+// clusterKey names the cluster column's setting: the plan key or the flag.
+func (a *Analysis) clusterKey() string {
 	if a.Plan {
-		key = "data.cluster"
+		return "data.cluster"
 	}
-	return fmt.Errorf("%s: %s: column %q holds one cluster id (%q) in the %d rows used: cluster-robust errors need at least 2 clusters, and about 40 to be trusted; with one cluster use the sandwich for independent rows",
-		a.Source, key, r.Options.Cluster, ds.Cluster[0], ds.N)
+	return "--cluster"
+}
+
+// ClusterCount is the number of distinct cluster ids of the rows used (0
+// without a cluster column).
+func ClusterCount(ds *data.Dataset) int {
+	seen := map[string]bool{}
+	for _, c := range ds.Cluster {
+		seen[c] = true
+	}
+	return len(seen)
+}
+
+// FewClusters is the warning of clustered errors on data with fewer than
+// fit.FewClusters clusters (at least 2: one is refused, Clusters), or "":
+// the one wording, which check, run (the outcome's notes, decisions.json's
+// and the report's) and ordplan fit give.
+func (a *Analysis) FewClusters(r Reading, ds *data.Dataset) string {
+	if a.Errors.Covariance != fit.Clustered || len(ds.Cluster) == 0 {
+		return ""
+	}
+	g := ClusterCount(ds)
+	if g < 2 || g >= fit.FewClusters {
+		return ""
+	}
+	col := r.Options.Cluster
+	return fmt.Sprintf("%s: column %q holds %d clusters in the %d rows used, fewer than %d: cluster-robust standard errors tend to be too small, so their z and Wald tests reject a true hypothesis too often, and a joint Wald test of more than G-1 = %d restrictions is not computed (the covariance has rank at most G-1, G the clusters). Where the clusters are a few fixed units, a model with %s as a categorical predictor (one effect per cluster; not for a predictor constant within clusters) and observed or sandwich errors is the safer analysis; otherwise read the clustered p-values and intervals as too small",
+		a.clusterKey(), col, g, ds.N, fit.FewClusters, g-1, col)
 }
 
 // CheckDesign checks an outcome's fit input before any model is fitted

@@ -111,6 +111,9 @@ func runOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash 
 	ds, dz := ld.Data, ld.Design
 	or := &OutcomeResult{Outcome: oc, Data: ds, FitData: ld.FitData, Design: dz, Terms: termsOf(dz), dataOptions: r.Options}
 	or.Notes = append(append(notes, ds.Notes...), dz.Notes...)
+	if w := an.FewClusters(r, ds); w != "" {
+		or.Notes = append(or.Notes, w)
+	}
 	if err := an.CheckDesign(r, dz, or.FitData); err != nil {
 		return nil, err
 	}

@@ -126,6 +126,16 @@ func fitOne(s SingleFit) (*fit.Result, *Loaded, *Analysis, error) {
 	return res, ld, a, nil
 }
 
+// FewClusters is the warning of clustered errors on the fit's data ds
+// when they hold too few clusters (Analysis.FewClusters), or "".
+func (s SingleFit) FewClusters(ds *data.Dataset) string {
+	a, err := ResolveFit(s)
+	if err != nil || len(a.Outcomes) == 0 || ds == nil {
+		return ""
+	}
+	return a.FewClusters(a.Outcomes[0], ds)
+}
+
 // Model is the model the flags describe, on the term names (which are the
 // columns when every term is a plain numeric column).
 func (s SingleFit) Model() (fit.Model, error) {

@@ -2,12 +2,10 @@ package runner
 
 import (
 	"fmt"
-	"math"
 	"slices"
 	"strings"
 
 	"ordplan/runner/fit"
-	"ordplan/runner/impute"
 )
 
 // TermTest is the test, in the chosen model, that one predictor term has
@@ -206,15 +204,7 @@ func runPooledTermTests(an *Analysis, or *OutcomeResult, opt Options) {
 	}
 	res, pl := or.Chosen.Result, or.Chosen.Pooled
 	out, scopes, refits := startTermTests(an, or, func(ne *fit.NoEffect) fit.Test {
-		var C []float64
-		for _, row := range ne.R {
-			C = append(C, row...)
-		}
-		t, err := impute.D1(pl, C, ne.Offsets(res.Estimates))
-		if err != nil {
-			return missingTest(fit.TestWald, err.Error())
-		}
-		return fTest(fit.TestWald, t, math.NaN(), math.NaN())
+		return pooledWald(res, pl, ne.R, ne.Offsets(res.Estimates))
 	})
 	run := or.Imputed
 	chosen, cerr := or.chosenPerSet()

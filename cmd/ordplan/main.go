@@ -184,6 +184,13 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		drop += "; " + strings.TrimSuffix(n, ".")
 	}
 	sum := render.DataSummary{File: s.DataName(), Outcome: *f.outcome, RowsRead: ds.RowsRead, RowsUsed: ds.N, DropSummary: drop, Sampling: s.Sampling}
+	if w := s.FewClusters(ds); w != "" {
+		// In the table; on standard error beside JSON.
+		sum.Warnings = append(sum.Warnings, w)
+		if *f.asJSON {
+			fmt.Fprintf(stderr, "warning: %s\n", w)
+		}
+	}
 	if err := f.print(stdout, res, sum, base, checks); err != nil {
 		return fail(stderr, err)
 	}

@@ -42,8 +42,9 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 	if code != exitOK {
 		return code
 	}
+	var dataWarnings []string
 	if !*noData {
-		if err := runner.CheckData(p); err != nil {
+		if dataWarnings, err = runner.CheckData(p); err != nil {
 			fmt.Fprintln(stderr, err)
 			return exitFail
 		}
@@ -69,6 +70,9 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stdout, "note: %d place(s) still marked %s by ordplan init (listed on standard error): check each and delete its marker; ordplan freeze refuses the plan until then\n", len(p.Unedited), plan.EditMarker)
 	}
 	warnPlan(p, stderr)
+	for _, w := range dataWarnings {
+		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
+	}
 	fmt.Fprintln(stdout, "The rules, in the order they will be applied to the models of each outcome:")
 	for _, s := range runner.DescribeRules(p) {
 		fmt.Fprintln(stdout, "  "+s)
@@ -258,7 +262,8 @@ func warnPlan(p *plan.Plan, stderr io.Writer) {
 
 // warnFound prints, on stderr, the warnings of runner.BinaryWarnings for
 // the outcomes whose categories the plan leaves to the data, once res has
-// read them.
+// read them, and those of data with too few clusters for clustered errors
+// (runner.FewClustersWarnings).
 func warnFound(p *plan.Plan, res *runner.Result, stderr io.Writer) {
 	found := make([]int, len(p.Outcomes))
 	for i, or := range res.Outcomes {
@@ -267,6 +272,9 @@ func warnFound(p *plan.Plan, res *runner.Result, stderr io.Writer) {
 		}
 	}
 	for _, w := range runner.BinaryWarnings(p, found) {
+		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
+	}
+	for _, w := range runner.FewClustersWarnings(res) {
 		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
 	}
 }

@@ -35,7 +35,7 @@ func (br *BrantResult) Joint(names []string) Test {
 	if err != nil {
 		return failedTest(TestBrant.String(), "%v", err)
 	}
-	x, err := waldStat(rows, br.beta, br.cov)
+	x, err := waldStat(rows, br.beta, br.cov, 0)
 	if err != nil {
 		return failedTest(TestBrant.String(), "%v", err)
 	}
@@ -255,7 +255,7 @@ func (br *BrantResult) equalSlopeTests(predictors []string, beta, V []float64) e
 	for k := 0; k < K; k++ {
 		rows := equalSlopeRows(k, q, K)
 		all = append(all, rows...)
-		x, err := waldStat(rows, beta, V)
+		x, err := waldStat(rows, beta, V, 0)
 		t := chi2Test(TestBrant.String(), x, len(rows))
 		if err != nil {
 			t = failedTest(TestBrant.String(), "%v", err)
@@ -263,7 +263,7 @@ func (br *BrantResult) equalSlopeTests(predictors []string, beta, V []float64) e
 		t.Name = predictors[k]
 		br.PerVariable = append(br.PerVariable, t)
 	}
-	x, err := waldStat(all, beta, V)
+	x, err := waldStat(all, beta, V, 0)
 	if err != nil {
 		return err
 	}

@@ -425,8 +425,43 @@ func testRTwoCategories(t *testing.T) {
 					a.errors(label+" expected-information errors (glm's)", r.ParamNames, re.StdErrors, vals.Get(t, prefix+".se_glm"), tolEst)
 				}
 				a.sandwiches(label, s.d, r, s.clusters, s.sampling, vals, prefix)
+				if s.name == "infert" {
+					a.fewClusters(label, s.d, r, ids(inf.Col(t, "education")), vals, prefix)
+				}
 			}
 		}
+	}
+}
+
+// fewClusters checks the cluster-robust covariance of infert's fit r with
+// its 3 education groups as clusters against R's hand computation, its
+// numerical rank (RankTolerance on the covariance scaled to unit
+// diagonal) against R's eigenvalues (both G-1 = 2), and that a Wald test
+// of 2 restrictions is made from it and of 3 refused.
+func (a *agreement) fewClusters(label string, d *fit.Data, r *fit.Result, clusters []string, vals rscript.Values, prefix string) {
+	t := a.t
+	t.Helper()
+	V, info, err := fit.SandwichEstimate(d, r, fit.Clustered, clusters, false)
+	if err != nil || info.Clusters != 3 {
+		t.Fatalf("%s: %d clusters, %v", label, info.Clusters, err)
+	}
+	a.cov(label+" clustered by education (3 clusters)", r.ParamNames, V, vals.Get(t, prefix+".clustered3"))
+	P := len(r.Estimates)
+	all := make([][]float64, P)
+	for i := range all {
+		all[i] = make([]float64, P)
+		all[i][i] = 1
+	}
+	want := vals.Scalar(t, prefix+".clustered3_rank")
+	if got := fit.RestrictionRank(all, V); float64(got) != want || got != 2 {
+		t.Errorf("%s: rank of the 3-cluster covariance %d, R's %g, want G-1 = 2", label, got, want)
+	}
+	rc := *r
+	rc.UseCovariance(V, info)
+	two := fit.WaldLinear(&rc, &fit.Hypothesis{R: all[1:3], C: []float64{0, 0}})
+	three := fit.WaldLinear(&rc, &fit.Hypothesis{R: all[1:4], C: []float64{0, 0, 0}})
+	if !two.OK || three.OK || !strings.Contains(three.Reason, "3 restrictions need at least 4 clusters") {
+		t.Errorf("%s: Wald tests of 2 restrictions %+v, of 3 %+v", label, two, three)
 	}
 }
 

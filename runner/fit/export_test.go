@@ -16,3 +16,9 @@ func (s *StartsTally) Check(t *testing.T) {
 	t.Helper()
 	s.c.check(t)
 }
+
+// RestrictionRank gives the external tests the numerical rank of the
+// covariance R V R' of the restrictions R (restrictionRank).
+func RestrictionRank(R [][]float64, V []float64) int {
+	return restrictionRank(restrictedCov(R, V, len(R[0])))
+}

@@ -169,6 +169,10 @@ type Result struct {
 	StdErrors  []float64
 	Cov        []float64 // NParams x NParams, row-major
 	CovType    Covariance
+	// Clusters is the number of clusters G of a cluster-robust covariance
+	// (CovType Clustered; 0 otherwise): its rank is at most G-1, and a
+	// Wald test of more restrictions is refused (waldDefined).
+	Clusters int
 	// DF is, per parameter, the degrees of freedom of the t distribution
 	// its intervals and p-values refer to: set on a fit pooled over
 	// imputed data sets (the Barnard-Rubin degrees of freedom), nil on a

@@ -249,7 +249,7 @@ func WaldLinear(r *Result, h *Hypothesis) Test {
 	for i, row := range h.R {
 		diff[i] = dot(row, r.Estimates) - h.C[i]
 	}
-	x, err := waldStatDiff(h.R, diff, r.Cov, len(r.Estimates))
+	x, err := waldStatDiff(h.R, diff, r.Cov, len(r.Estimates), r.Clusters)
 	if err != nil {
 		return failedTest(TestWald.String(), "%v", err)
 	}

@@ -119,7 +119,7 @@ func WaldNoEffect(r *Result, ne *NoEffect) Test {
 	if !r.OK() || r.Cov == nil {
 		return failedTest(TestWald.String(), "%s has no usable estimates", r.Name)
 	}
-	x, err := waldStatDiff(ne.R, ne.Value, r.Cov, len(r.Estimates))
+	x, err := waldStatDiff(ne.R, ne.Value, r.Cov, len(r.Estimates), r.Clusters)
 	if err != nil {
 		return failedTest(TestWald.String(), "%v", err)
 	}

@@ -214,42 +214,31 @@ func WaldEqualSlopes(r *Result, predictors []string) Test {
 			rows = append(rows, row)
 		}
 	}
-	x, err := waldStat(rows, r.Estimates, r.Cov)
+	x, err := waldStat(rows, r.Estimates, r.Cov, r.Clusters)
 	if err != nil {
 		return failedTest(TestWald.String(), "%v", err)
 	}
 	return chi2Test(TestWald.String(), x, len(rows))
 }
 
-// waldStat is (R t)' (R V R')^-1 (R t).
-func waldStat(R [][]float64, theta, V []float64) (float64, error) {
+// waldStat is (R t)' (R V R')^-1 (R t) (clusters as waldDefined's).
+func waldStat(R [][]float64, theta, V []float64, clusters int) (float64, error) {
 	rt := make([]float64, len(R))
 	for i, row := range R {
 		rt[i] = dot(row, theta)
 	}
-	return waldStatDiff(R, rt, V, len(theta))
+	return waldStatDiff(R, rt, V, len(theta), clusters)
 }
 
-// waldStatDiff is diff' (R V R')^-1 diff.
-func waldStatDiff(R [][]float64, rt, V []float64, P int) (float64, error) {
-	n := len(R)
-	if n == 0 {
+// waldStatDiff is diff' (R V R')^-1 diff, refused when R V R' does not
+// have full rank (waldDefined; clusters as there).
+func waldStatDiff(R [][]float64, rt, V []float64, P, clusters int) (float64, error) {
+	if len(R) == 0 {
 		return 0, fmt.Errorf("no restrictions")
 	}
-	M := mat.NewSymDense(n, nil)
-	for i := 0; i < n; i++ {
-		for j := i; j < n; j++ {
-			s := 0.0
-			for a := 0; a < P; a++ {
-				if R[i][a] == 0 {
-					continue
-				}
-				for b := 0; b < P; b++ {
-					s += R[i][a] * V[a*P+b] * R[j][b]
-				}
-			}
-			M.SetSym(i, j, s)
-		}
+	M := restrictedCov(R, V, P)
+	if err := waldDefined(M, clusters); err != nil {
+		return 0, err
 	}
 	return quadInv(M, rt)
 }

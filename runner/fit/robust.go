@@ -203,13 +203,22 @@ func sandwichProduct(Ainv, B []float64, P int) []float64 {
 }
 
 // UseCovariance replaces the covariance of a fit (and its standard errors)
-// by V, recording its type.
-func (r *Result) UseCovariance(V []float64, kind Covariance) {
+// by the sandwich estimate V, recording its type and clusters.
+func (r *Result) UseCovariance(V []float64, info SandwichInfo) {
 	P := len(r.Estimates)
 	r.Cov = V
-	r.CovType = kind
+	r.CovType = info.Type
+	r.Clusters = info.Clusters
 	r.StdErrors = make([]float64, P)
 	for i := 0; i < P; i++ {
 		r.StdErrors[i] = math.Sqrt(math.Max(V[i*P+i], 0))
 	}
 }
+
+// FewClusters is the number of clusters below which cluster-robust errors
+// are flagged (runner's Analysis.FewClusters): with fewer, the sandwich of summed
+// cluster scores is biased downward even with the factor G/(G-1), and its
+// z and Wald tests, referred to the normal and chi-square, reject a true
+// hypothesis too often (docs/models.md, "Sandwich and cluster-robust
+// errors", says why 40).
+const FewClusters = 40

@@ -4,13 +4,17 @@
 # 1. R's infert (datasets package, ?infert: "Infertility after Spontaneous
 #    and Induced Abortion", Trichopoulos et al. 1976): outcome case (category
 #    1 = control, 2 = case), predictors age, parity, induced, spontaneous;
-#    clusters: the matched sets (stratum). Exported to infert.csv.
+#    clusters: the matched sets (stratum); also education (3 levels) as
+#    3 clusters, whose cluster-robust covariance has rank G-1 = 2: its
+#    numerical rank is the number of eigenvalues of the covariance scaled
+#    to unit diagonal (cov2cor) above 1e-10 of the largest. Exported to
+#    infert.csv.
 # 2. sim2.csv, written by the Go test (seeded simulation): outcome y (1, 2),
 #    predictors x1, x2, sampling weights sw, clusters g.
 
 inf <- data.frame(y = infert$case + 1, age = infert$age, parity = infert$parity,
   induced = infert$induced, spontaneous = infert$spontaneous,
-  stratum = infert$stratum)
+  stratum = infert$stratum, education = as.integer(infert$education))
 write.csv(inf, "infert.csv", row.names = FALSE)
 Z <- cbind(1, as.matrix(inf[, c("age", "parity", "induced", "spontaneous")]))
 sgn <- c(1, -1, -1, -1, -1)
@@ -19,6 +23,10 @@ for (link in links) {
   b <- binfit(Z, sgn, as.numeric(inf$y == 1), rep(1, nrow(inf)), link)
   printfit(paste0("infert.", link), b)
   printsandwiches(paste0("infert.", link), b, FALSE, inf$stratum)
+  V3 <- sandwich(b, FALSE, inf$education)
+  out(paste0("infert.", link, ".clustered3"), V3)
+  ev <- eigen(cov2cor(V3), symmetric = TRUE, only.values = TRUE)$values
+  out(paste0("infert.", link, ".clustered3_rank"), sum(ev > 1e-10 * max(ev)))
 }
 
 sim <- read.csv("sim2.csv")

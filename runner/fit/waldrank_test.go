@@ -1,0 +1,194 @@
+package fit
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"slices"
+	"strings"
+	"testing"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// clusteredFit fits a cumulative nonparallel logit (three predictors, four
+// categories: 12 parameters) to seeded data whose rows fall in G clusters
+// (row i in cluster i mod G) and gives it the cluster-robust covariance.
+func clusteredFit(t *testing.T, G int) *Result {
+	t.Helper()
+	d := clusteredData(t)
+	r := fitOK(t, d, robModel(Cumulative, false, Logit, 3, Nonparallel))
+	clusters := make([]string, d.N())
+	for i := range clusters {
+		clusters[i] = fmt.Sprintf("c%02d", i%G)
+	}
+	V, info, err := SandwichEstimate(d, r, Clustered, clusters, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if info.Clusters != G {
+		t.Fatalf("%d clusters, want %d", info.Clusters, G)
+	}
+	r.UseCovariance(V, info)
+	return r
+}
+
+// scaledEigenvalues are the eigenvalues of V scaled to unit diagonal,
+// largest first, over the largest.
+func scaledEigenvalues(t *testing.T, V []float64, P int) []float64 {
+	t.Helper()
+	s := make([]float64, P)
+	for i := range s {
+		s[i] = 1 / math.Sqrt(V[i*P+i])
+	}
+	var es mat.EigenSym
+	if !es.Factorize(scaledSym(V, P, s), false) {
+		t.Fatal("no eigenvalues")
+	}
+	vals := es.Values(nil)
+	slices.Reverse(vals)
+	for i := len(vals) - 1; i >= 0; i-- {
+		vals[i] /= vals[0]
+	}
+	return vals
+}
+
+// identityRows are the P restrictions theta = 0.
+func identityRows(P int) [][]float64 {
+	rows := make([][]float64, P)
+	for i := range rows {
+		rows[i] = make([]float64, P)
+		rows[i][i] = 1
+	}
+	return rows
+}
+
+// With 3 clusters the cluster-robust covariance of 12 parameters has rank
+// G-1 = 2 (the three clusters' summed scores add up to the total score,
+// zero at the maximum): its numerical rank is 2, the eigenvalues beyond
+// the second lie far below RankTolerance and the second far above it. A
+// Wald test of 2 restrictions is made; of 3 or more, it is refused with
+// the number of clusters it needs, never an absurd statistic; so are the
+// omnibus parallel-lines Wald test (6 restrictions) and a hypothesis of 3
+// restrictions.
+func TestClusteredWaldNeedsClusters(t *testing.T) {
+	r := clusteredFit(t, 3)
+	P := len(r.Estimates)
+	if r.Clusters != 3 || r.CovType != Clustered {
+		t.Fatalf("clusters %d, covariance %s", r.Clusters, r.CovType)
+	}
+	vals := scaledEigenvalues(t, r.Cov, P)
+	t.Logf("eigenvalues of the scaled covariance over the largest: %.3g", vals)
+	if vals[1] < 1e4*RankTolerance || vals[2] > 1e-4*RankTolerance {
+		t.Errorf("eigenvalues %.3g: the second should lie far above %g and the third far below", vals[:3], RankTolerance)
+	}
+	if got := restrictionRank(restrictedCov(identityRows(P), r.Cov, P)); got != 2 {
+		t.Errorf("rank of the clustered covariance %d, want G-1 = 2", got)
+	}
+	// The numerical rank alone refuses 3 restrictions too.
+	if got := restrictionRank(restrictedCov(identityRows(P)[3:6], r.Cov, P)); got != 2 {
+		t.Errorf("rank of 3 restrictions %d, want 2", got)
+	}
+	two := WaldEqualSlopes(r, []string{"x1"})
+	if !two.OK || two.DF != 2 || !(two.Chi2 >= 0) || two.Chi2 > 1e3 {
+		t.Errorf("x1 (2 restrictions): %+v", two)
+	}
+	for _, c := range []struct {
+		test Test
+		q    int
+	}{
+		{WaldEqualSlopes(r, []string{"x1", "x2"}), 4},
+		{WaldEqualSlopes(r, r.Predictors), 6},
+		{WaldLinear(r, mustHypothesis(t, "x1[1] = 0; x2[1] = 0; x3[1] = 0", r.ParamNames)), 3},
+	} {
+		want := fmt.Sprintf("%d restrictions need at least %d clusters (a cluster-robust covariance has rank at most G-1, G the clusters); the data have 3", c.q, c.q+1)
+		if c.test.OK || c.test.Reason != want {
+			t.Errorf("%d restrictions: ok %v, chi2 %g, reason %q; want the reason %q", c.q, c.test.OK, c.test.Chi2, c.test.Reason, want)
+		}
+	}
+	if h := WaldLinear(r, mustHypothesis(t, "x1[1] = 0; x2[1] = 0", r.ParamNames)); !h.OK || h.DF != 2 {
+		t.Errorf("2 restrictions: %+v", h)
+	}
+	// The refusal rests on the clusters, the model-based covariance of the
+	// same fit gives every test.
+	model := fitOK(t, clusteredData(t), robModel(Cumulative, false, Logit, 3, Nonparallel))
+	if w := WaldEqualSlopes(model, model.Predictors); !w.OK || w.DF != 6 {
+		t.Errorf("observed information: %+v", w)
+	}
+}
+
+// clusteredData are clusteredFit's data: 600 rows, x1 and x3 normal, x2
+// 0/1, categories cut from a latent logistic variable at its 20th, 50th
+// and 80th percentiles.
+func clusteredData(t *testing.T) *Data {
+	t.Helper()
+	rng := rand.New(rand.NewPCG(20261204, 3))
+	return robLatent(rng, 600, []float64{0.8, 0.5, -0.4}, []float64{0.2, 0.5, 0.8}, func(i, k int) float64 {
+		if k == 1 {
+			return float64(rng.IntN(2))
+		}
+		return rng.NormFloat64()
+	})
+}
+
+func mustHypothesis(t *testing.T, text string, names []string) *Hypothesis {
+	t.Helper()
+	h, err := ParseHypothesis(text, names)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return h
+}
+
+// With 60 clusters the covariance has full rank and every Wald test is
+// made, equal to (R t)' (R V R')^-1 (R t) computed here with a general
+// inverse: the rank check changes nothing there.
+func TestClusteredWaldManyClusters(t *testing.T) {
+	r := clusteredFit(t, 60)
+	P := len(r.Estimates)
+	if got := restrictionRank(restrictedCov(identityRows(P), r.Cov, P)); got != P {
+		t.Errorf("rank %d, want %d", got, P)
+	}
+	for _, names := range [][]string{{"x1"}, {"x1", "x2"}, r.Predictors} {
+		w := WaldEqualSlopes(r, names)
+		if !w.OK || w.DF != 2*len(names) {
+			t.Fatalf("%v: %+v", names, w)
+		}
+		var rows [][]float64
+		for _, n := range names {
+			first := slices.Index(r.ParamNames, n+"[1]")
+			for m := 0; m < 2; m++ {
+				row := make([]float64, P)
+				row[first+m], row[first+m+1] = 1, -1
+				rows = append(rows, row)
+			}
+		}
+		q := len(rows)
+		R := mat.NewDense(q, P, nil)
+		for i, row := range rows {
+			R.SetRow(i, row)
+		}
+		var RV, M, Mi mat.Dense
+		RV.Mul(R, mat.NewDense(P, P, r.Cov))
+		M.Mul(&RV, R.T())
+		if err := Mi.Inverse(&M); err != nil {
+			t.Fatal(err)
+		}
+		d := mat.NewVecDense(q, nil)
+		d.MulVec(R, mat.NewVecDense(P, r.Estimates))
+		want := mat.Inner(d, &Mi, d)
+		if !near(w.Chi2, want, 1e-10, 0) {
+			t.Errorf("%v: chi2 %.15g, general inverse %.15g", names, w.Chi2, want)
+		}
+	}
+}
+
+// A hypothesis whose restrictions repeat one another has a singular
+// covariance under any covariance kind: refused with its rank.
+func TestWaldRepeatedRestrictions(t *testing.T) {
+	r := fitOK(t, clusteredData(t), robModel(Cumulative, false, Logit, 3, Parallel))
+	w := WaldLinear(r, mustHypothesis(t, "x1 = x2; 2*x1 = 2*x2", r.ParamNames))
+	if w.OK || !strings.Contains(w.Reason, "singular (rank 1 of 2)") {
+		t.Errorf("%+v", w)
+	}
+}
