@@ -64,6 +64,25 @@ rules:
   - choose: {by: aic}
 `
 
+// clusterData writes clu.csv beside the plan: d.csv with cluster columns
+// dealing its rows into 2, 3 and 60 clusters (two, three, sixty).
+func clusterData(t *testing.T, dir, id string) {
+	t.Helper()
+	src, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(src)), "\n")
+	var b strings.Builder
+	b.WriteString(lines[0] + ",two,three,sixty\n")
+	for i, l := range lines[1:] {
+		fmt.Fprintf(&b, "%s,%c,%c,s%d\n", l, "pq"[i%2], "kmn"[i%3], i%60)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "clu.csv"), []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+}
+
 // edit makes replacements (old, new, old, new, ...) in goodPlan.
 func edit(pairs ...string) string {
 	s := goodPlan
@@ -1156,6 +1175,61 @@ func catalogue(dir string) (items []badInput) {
 					if !strings.Contains(errs, w) {
 						t.Errorf("check's warnings lack %q:\n%s", w, errs)
 					}
+				}
+			}},
+		{id: "W8", name: "clustered errors from fewer than 40 clusters", args: []string{"check"}, setup: clusterData,
+			plan: edit("file: d.csv", "file: clu.csv\n  cluster: three", "rules:", "covariance: clustered\nrules:"), code: 0,
+			want: []string{"plan is valid"},
+			check: func(t *testing.T, dir, out, errs string) {
+				few := `data.cluster: column "three" holds 3 clusters in the 120 rows used, fewer than 40: cluster-robust standard errors tend to be too small, so their z and Wald tests reject a true hypothesis too often, and a joint Wald test of more than G-1 = 2 restrictions is not computed (the covariance has rank at most G-1, G the clusters). Where the clusters are a few fixed units, a model with three as a categorical predictor`
+				if !strings.Contains(errs, "W8.yaml: outcome y: "+few) {
+					t.Errorf("check does not warn of few clusters:\n%s", errs)
+				}
+				p, outDir := filepath.Join(dir, "W8.yaml"), filepath.Join(dir, "W8-out")
+				_, e, code := runCLI("run", p, "--out", outDir, "--quiet")
+				dec, _ := os.ReadFile(filepath.Join(outDir, "decisions.json"))
+				rep, _ := os.ReadFile(filepath.Join(outDir, "report.md"))
+				if code != 0 || !strings.Contains(e, "W8.yaml: outcome y: "+few) || !strings.Contains(string(dec), strings.ReplaceAll(few, `"`, `\"`)) || !strings.Contains(string(rep), few) {
+					t.Errorf("run (exit %d) does not warn on stderr, in decisions.json's notes and in the report:\n%s", code, e)
+				}
+				clu := filepath.Join(dir, "clu.csv")
+				tab, e, _ := runCLI(fitArgs(clu, "--predictors", "a,b", "--covariance", "clustered", "--cluster", "three")...)
+				flag := strings.Replace(few, "data.cluster", "--cluster", 1)
+				if !strings.Contains(tab, "Standard errors  cluster-robust sandwich (CR1: times G/(G-1) (N-1)/(N-P)), 3 clusters") || !strings.Contains(tab, "Warning: "+flag) || e != "" {
+					t.Errorf("fit does not warn in its table:\n%s\nstderr: %s", tab, e)
+				}
+				js, e, _ := runCLI(fitArgs(clu, "--predictors", "a,b", "--covariance", "clustered", "--cluster", "three", "--json")...)
+				if !strings.Contains(js, `"clusters": 3`) || !strings.HasPrefix(e, "warning: "+flag) {
+					t.Errorf("fit --json does not warn on stderr:\n%s", e)
+				}
+				// With 60 clusters nothing is said.
+				tab, e, _ = runCLI(fitArgs(clu, "--predictors", "a,b", "--covariance", "clustered", "--cluster", "sixty")...)
+				if !strings.Contains(tab, "), 60 clusters\n") || strings.Contains(tab, "Warning") || e != "" {
+					t.Errorf("60 clusters:\n%s\nstderr: %s", tab, e)
+				}
+			}},
+		{id: "W9", name: "a joint Wald test of more restrictions than the clusters less one", args: []string{"run"}, setup: clusterData,
+			plan: edit("file: d.csv", "file: clu.csv\n  cluster: two", "tests: {parallel_lines: [lr]}", "tests: {parallel_lines: [wald]}",
+				"rules:\n  - reject_unconverged: true", "covariance: clustered\ninference: {hypotheses: [\"a = 0; b = 0\"]}\nrules:\n  - reject_if_test_rejects: {test: wald, alpha: 0.05}"), code: 0,
+			want: []string{"y: chosen: "},
+			check: func(t *testing.T, dir, out, errs string) {
+				outDir := filepath.Join(dir, "W9-out")
+				dec, _ := os.ReadFile(filepath.Join(outDir, "decisions.json"))
+				rep, _ := os.ReadFile(filepath.Join(outDir, "report.md"))
+				need := func(q int) string {
+					return fmt.Sprintf("%d restrictions need at least %d clusters, and the data have 2: a cluster-robust covariance from G clusters has rank at most G-1", q, q+1)
+				}
+				for _, w := range []string{`"reason": "` + need(2), `"reason": "` + need(4), "the Wald test against cumulative/nonparallel/logit cannot be computed (" + need(2) + ")"} {
+					if !strings.Contains(string(dec), w) {
+						t.Errorf("decisions.json lacks %s", w)
+					}
+				}
+				if !strings.Contains(string(rep), "not computed: "+need(2)) {
+					t.Errorf("report.md does not say why the tests were not computed")
+				}
+				// A test of one restriction (each predictor's) is made.
+				if !strings.Contains(string(rep), "| Wald: a | ") || strings.Contains(string(rep), "| Wald: a |  |") {
+					t.Errorf("report.md lacks the Wald test of a")
 				}
 			}},
 		{id: "W4", name: "every weight zero", args: []string{"run"},

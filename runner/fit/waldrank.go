@@ -84,7 +84,7 @@ func restrictionRank(M *mat.SymDense) int {
 func waldDefined(M *mat.SymDense, clusters int) error {
 	q := M.SymmetricDim()
 	if clusters > 0 && q > clusters-1 {
-		return fmt.Errorf("%d restrictions need at least %d clusters (a cluster-robust covariance has rank at most G-1, G the clusters); the data have %d", q, q+1, clusters)
+		return fmt.Errorf("%d restrictions need at least %d clusters, and the data have %d: a cluster-robust covariance from G clusters has rank at most G-1", q, q+1, clusters)
 	}
 	if r := restrictionRank(M); r < q {
 		if clusters > 0 {
