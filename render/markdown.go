@@ -85,6 +85,9 @@ func writeSummary(d *doc, r *runner.Result) {
 				item += fmt.Sprintf(" **This model %s** (its cumulative probabilities cross; see the chosen model's section).", s)
 			}
 		}
+		if g := runner.ClusterCount(or.Data); r.Analysis != nil && r.Analysis.Errors.Covariance == fit.Clustered && g >= 2 && g < fit.FewClusters {
+			item += fmt.Sprintf(" **Its cluster-robust standard errors rest on %d clusters of %s, fewer than %d: they tend to be too small, and joint Wald tests of more than %d restrictions are not computed** (see the notes under The models).", g, mdCode(r.Plan.Data.Cluster), fit.FewClusters, g-1)
+		}
 		items = append(items, item)
 	}
 	d.list(items)
