@@ -15,22 +15,31 @@ import (
 	"ordplan/runner/impute"
 )
 
-// Cluster-robust errors on the invented example data (clusters: district),
-// and sampling weights, which turn likelihood-ratio tests into Wald
-// tests and say so.
-func TestRunRobustAndProbabilityWeights(t *testing.T) {
-	dir := t.TempDir()
+// exampleWith writes dir/d.csv: the invented example data with more
+// columns (names, comma separated), row i's cells from cells(i).
+func exampleWith(t *testing.T, dir, names string, cells func(i int) string) {
+	t.Helper()
 	src, err := os.ReadFile(filepath.Join("..", "plans", "data", "quietstreets.csv"))
 	if err != nil {
 		t.Fatal(err)
 	}
 	lines := strings.Split(strings.TrimSpace(string(src)), "\n")
 	var b strings.Builder
-	b.WriteString(lines[0] + ",sw\n")
+	b.WriteString(lines[0] + "," + names + "\n")
 	for i, l := range lines[1:] {
-		b.WriteString(l + "," + strconv.Itoa(1+i%3) + "\n")
+		b.WriteString(l + "," + cells(i) + "\n")
 	}
-	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
+	if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// Cluster-robust errors on the invented example data (clusters: district),
+// and sampling weights, which turn likelihood-ratio tests into Wald
+// tests and say so.
+func TestRunRobustAndProbabilityWeights(t *testing.T) {
+	dir := t.TempDir()
+	exampleWith(t, dir, "sw", func(i int) string { return strconv.Itoa(1 + i%3) })
 	base := `version: 1
 title: sandwich
 data: {file: d.csv, cluster: district%s}
@@ -62,7 +71,7 @@ covariance: clustered
 	// With sampling weights the plan's LR rule and BIC choice are refused,
 	// naming the comparisons; the Wald rule and TIC run.
 	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(strings.Replace(base, "%s", ", weights: sw, weight_kind: sampling", 1)), 0o644)
-	_, err = plan.Load(filepath.Join(dir, "p.yaml"))
+	_, err := plan.Load(filepath.Join(dir, "p.yaml"))
 	if err == nil || !strings.Contains(err.Error(), "p.yaml:9:36: rules[0].reject_if_test_rejects.test: the likelihood-ratio test is not defined for 2 of the 2 comparisons") ||
 		!strings.Contains(err.Error(), "p.yaml:10:18: rules[1].choose.by: by: bic assumes a likelihood") {
 		t.Fatalf("sampling weights with lr and bic: %v", err)
@@ -128,17 +137,7 @@ rules:
 // warns.
 func TestFewClustersRun(t *testing.T) {
 	dir := t.TempDir()
-	src, err := os.ReadFile(filepath.Join("..", "plans", "data", "quietstreets.csv"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	lines := strings.Split(strings.TrimSpace(string(src)), "\n")
-	var b strings.Builder
-	b.WriteString(lines[0] + ",c3,c60\n")
-	for i, l := range lines[1:] {
-		fmt.Fprintf(&b, "%s,%c,g%d\n", l, "kmn"[i%3], i%60)
-	}
-	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
+	exampleWith(t, dir, "c3,c60", func(i int) string { return fmt.Sprintf("%c,g%d", "kmn"[i%3], i%60) })
 	base := `version: 1
 title: few clusters
 data: {file: d.csv, cluster: %s}
