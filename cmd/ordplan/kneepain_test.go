@@ -57,7 +57,8 @@ func TestRegisteredExampleBeforeData(t *testing.T) {
 // and the report says how many simulated rows it kept (in the opening
 // lines and in the methods paragraph), and that the stated proportions
 // describe the rows it keeps. The stage generating model is
-// named, with its stated correlation accepted.
+// named, with its stated correlation accepted. The command line is
+// recorded in the report and run.json.
 func TestRehearseWithSubset(t *testing.T) {
 	src, err := os.ReadFile(filepath.Join("..", "..", "plans", "kneepain.yaml"))
 	if err != nil {
@@ -72,11 +73,17 @@ func TestRehearseWithSubset(t *testing.T) {
 	if err := os.WriteFile(path, []byte(s), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	out, errs, code := runCLI("rehearse", path, "--out", filepath.Join(dir, "r"))
+	out, errs, code := runCLI("rehearse", path, "--out", filepath.Join(dir, "r"), "--workers", "2")
 	if code != 0 {
 		t.Fatalf("rehearse: %d %s %s", code, out, errs)
 	}
 	md, _ := os.ReadFile(filepath.Join(dir, "r", "report.md"))
+	rj, _ := os.ReadFile(filepath.Join(dir, "r", "run.json"))
+	// The command line is recorded as for run: without where the
+	// outputs go and how many fits run at once.
+	if !strings.Contains(string(md), "| Command line | `ordplan rehearse sub.yaml` |") || !strings.Contains(string(rj), `"command_line": "ordplan rehearse sub.yaml"`) {
+		t.Errorf("the rehearsal's command line is not recorded in report.md and run.json:\n%s", rj)
+	}
 	for _, want := range []string{"with a stage (forward) logit model generating each outcome", "The plan's subset (baseline_pain >= 3) kept ",
 		" of the 300 simulated rows. The stated category proportions describe the rows the subset keeps, the population the plan analyses", "met the plan's subset conditions (baseline_pain >= 3) and ", " failed them. "} {
 		if !strings.Contains(string(md), want) {

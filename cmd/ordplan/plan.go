@@ -178,7 +178,7 @@ func isTerminal(f *os.File) bool {
 	return err == nil && st.Mode()&os.ModeCharDevice != 0
 }
 
-// resultArgs gives the arguments of run or power as the report records
+// resultArgs gives the arguments of run, rehearse or power as the report records
 // them: without those that cannot change what the command computes or
 // reports (where the outputs go, how many fits run at once, the queue
 // server and how to reach it, progress lines), and with the plan and the

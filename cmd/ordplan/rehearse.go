@@ -30,6 +30,7 @@ func loadForSimulation(path string) (*plan.Plan, error) {
 
 // cmdRehearse runs the whole plan on data simulated from its assumptions.
 func cmdRehearse(args []string, stdout, stderr io.Writer) int {
+	rawArgs := append([]string(nil), args...)
 	fs := newFlags("rehearse", stderr)
 	n := fs.Int("n", 0, "rows to simulate (default: assumptions.n)")
 	out := fs.String("out", "", "output directory (default: out/<plan name>-rehearsal)")
@@ -98,6 +99,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 		msg := strings.ReplaceAll(err.Error(), q.Data.Path, simulatedFile+" (not kept: the rehearsal wrote nothing)")
 		return fail(stderr, fmt.Errorf("rehearsal on simulated data: %w", renamedError{msg, err}))
 	}
+	res.Command = commandLine(append([]string{"ordplan", "rehearse"}, resultArgs(fs, rawArgs, planPath)...))
 	res.Registration = reg
 	res.Simulated = &runner.Simulation{Command: "rehearse", N: rows, Seed: p.Seed, Link: sim.Link.String(), Model: sim.GeneratingModel(), File: simulatedFile, Truth: sim.Truth()}
 	analysed := rows
