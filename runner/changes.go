@@ -15,6 +15,17 @@ import (
 // Changes compares this run's decisions with those of an earlier run
 // (its output directory) and lists what changed, in plan order.
 func Changes(prevDir string, cur *Decisions) ([]string, error) {
+	prev, err := ReadPrevious(prevDir)
+	if err != nil {
+		return nil, err
+	}
+	return ChangesFrom(prev, cur), nil
+}
+
+// ReadPrevious reads the decisions record of the earlier run in prevDir
+// (the folder of --previous), so that a run can refuse a wrong folder
+// before it fits anything.
+func ReadPrevious(prevDir string) (*Decisions, error) {
 	b, err := os.ReadFile(filepath.Join(prevDir, "decisions.json"))
 	if err != nil {
 		return nil, fmt.Errorf("--previous: %w", err)
@@ -23,6 +34,11 @@ func Changes(prevDir string, cur *Decisions) ([]string, error) {
 	if err := json.Unmarshal(b, &prev); err != nil {
 		return nil, fmt.Errorf("--previous: %s is not a decisions record: %v", filepath.Join(prevDir, "decisions.json"), err)
 	}
+	return &prev, nil
+}
+
+// ChangesFrom is Changes with the earlier record read (ReadPrevious).
+func ChangesFrom(prev, cur *Decisions) []string {
 	var out []string
 	if prev.Plan.SHA256 != cur.Plan.SHA256 {
 		out = append(out, fmt.Sprintf("The plan changed (sha256 %.12s... -> %.12s...).", prev.Plan.SHA256, cur.Plan.SHA256))
@@ -79,7 +95,7 @@ func Changes(prevDir string, cur *Decisions) ([]string, error) {
 	if len(out) == 0 {
 		out = append(out, "No decision changed.")
 	}
-	return out, nil
+	return out
 }
 
 // countsChange says how the outcome's category counts changed ("counts

@@ -1263,6 +1263,13 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("the refused run wrote report.html: %v", fi.Mode())
 				}
 			}},
+		{id: "O12", name: "--previous naming a folder without an earlier run", args: []string{"run", "--previous", "no-such-run"}, plan: goodPlan, code: 1,
+			want: []string{"ordplan: --previous: open no-such-run/decisions.json: no such file or directory"},
+			check: func(t *testing.T, dir, out, errs string) {
+				if _, err := os.Stat(filepath.Join(dir, "O12-out")); !os.IsNotExist(err) {
+					t.Errorf("the run went on to its output folder: %v", err)
+				}
+			}},
 		{id: "O2", name: "second run into a folder being written", args: []string{"run"}, plan: goodPlan, code: 1,
 			want: []string{"O2-out: another ordplan run is writing there (held by process "}},
 		{id: "O3", name: "outcomes that map to one file name", args: []string{"run"},

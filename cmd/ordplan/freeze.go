@@ -69,12 +69,19 @@ func cmdFreeze(args []string, stdout, stderr io.Writer) int {
 // (then usage is printed).
 func planArg(fs *flag.FlagSet, args []string, usage string, stderr io.Writer) (path string, stop bool, code int) {
 	path, args = leadingArg(args)
-	if stop, code := parseFlags(fs, args); stop {
-		return "", true, code
+	for {
+		if stop, code := parseFlags(fs, args); stop {
+			return "", true, code
+		}
+		// The flag package stops at the first argument that is not a
+		// flag: the plan between options (run --previous A plan.yaml
+		// --out B) is taken, and the options after it parsed too.
+		if fs.NArg() == 0 || path != "" {
+			break
+		}
+		path, args = fs.Arg(0), fs.Args()[1:]
 	}
-	if path == "" && fs.NArg() == 1 {
-		path = fs.Arg(0)
-	} else if fs.NArg() > 0 || path == "" {
+	if fs.NArg() > 0 || path == "" {
 		fmt.Fprintln(stderr, usage)
 		return "", true, exitUsage
 	}

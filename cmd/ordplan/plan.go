@@ -113,6 +113,14 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	if code != exitOK {
 		return code
 	}
+	// The earlier run's record, read before anything is fitted (a wrong
+	// folder is said at once) and before this run may replace it.
+	var prev *runner.Decisions
+	if *previous != "" {
+		if prev, err = runner.ReadPrevious(*previous); err != nil {
+			return fail(stderr, err)
+		}
+	}
 	dir := *out
 	if dir == "" {
 		base := filepath.Base(planPath)
@@ -140,10 +148,8 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	res.Registration = reg
 	dec := runner.BuildDecisions(res)
 	var changes []string
-	if *previous != "" {
-		if changes, err = runner.Changes(*previous, dec); err != nil {
-			return fail(stderr, err)
-		}
+	if prev != nil {
+		changes = runner.ChangesFrom(prev, dec)
 	}
 	files, err := render.Outputs(res, dec, changes)
 	if err != nil {
