@@ -17,7 +17,7 @@ func OddsRatioKind(m Model) string {
 	case m.Comparison == Cumulative:
 		return "cumulative odds ratio"
 	case m.Comparison == Stage && m.Backward:
-		return "continuation odds ratio (backward)"
+		return "backward continuation odds ratio"
 	case m.Comparison == Stage:
 		return "continuation odds ratio"
 	}
