@@ -1,6 +1,7 @@
 package fit
 
 import (
+	"encoding/json"
 	"fmt"
 	"math"
 	"strconv"
@@ -96,6 +97,25 @@ type Test struct {
 	// is F(DF, DF2) = Chi2/DF and P comes from that F distribution.
 	Pooled string  `json:"pooled,omitempty"`
 	DF2    float64 `json:"df2,omitempty"`
+}
+
+// MarshalJSON writes a test that was not computed (OK false, not
+// Negative) with null statistic, degrees of freedom and p-value, so that a reader of the
+// record never takes its zeros for a statistic of 0 with p = 0 (a
+// rejection); the reason says why it was not computed.
+func (t Test) MarshalJSON() ([]byte, error) {
+	type plain Test // without this method
+	if t.OK || t.Negative {
+		// A negative likelihood-ratio statistic keeps its statistic and
+		// degrees of freedom; its p-value is NaN, written as null.
+		return json.Marshal(plain(t))
+	}
+	return json.Marshal(struct {
+		plain
+		Chi2 *float64 `json:"chi2"`
+		DF   *int     `json:"df"`
+		P    *float64 `json:"p"`
+	}{plain: plain(t)})
 }
 
 func failedTest(name, format string, a ...any) Test {

@@ -5,6 +5,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 )
 
@@ -226,5 +227,31 @@ func TestLRNegativeStatistic(t *testing.T) {
 	large.LogLik = small.LogLik + 1.5
 	if tt := LRTest(small, large); !tt.OK || tt.Negative || tt.Chi2 != 3 || math.Abs(tt.P-math.Exp(-1.5)) > 1e-12 {
 		t.Errorf("positive: %+v (chi2(2) survival at 3 is exp(-1.5))", tt)
+	}
+}
+
+// A test that was not computed is written with null statistic, degrees
+// of freedom and p-value (its zeros would read as p = 0, a rejection); a
+// computed one with its numbers.
+func TestNotComputedTestJSON(t *testing.T) {
+	b, err := json.Marshal(failedTest("brant", "defined for the cumulative logit model only"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var got map[string]any
+	if err := json.Unmarshal(b, &got); err != nil {
+		t.Fatal(err)
+	}
+	for _, k := range []string{"chi2", "df", "p"} {
+		if v, ok := got[k]; !ok || v != nil {
+			t.Errorf("not computed: %s = %v (present %v), want null: %s", k, v, ok, b)
+		}
+	}
+	b, err = json.Marshal(chi2Test("lr", 3.84, 1))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(b), `"chi2":3.84,"df":1,"p":0.05`) {
+		t.Errorf("computed: %s", b)
 	}
 }
