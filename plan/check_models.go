@@ -50,6 +50,12 @@ func (d *decoder) checkPartial(p *Plan) {
 			if len(users) == 2 {
 				what = "effect structures " + quote(users[0]) + " and " + quote(users[1]) + " need"
 			}
+			if !d.given("models.effects") {
+				// The default grid, not a list the user wrote, asks for them:
+				// say so, and how to leave them out.
+				d.errAt("models.partial", "%s a partial set, and models.effects is not given, so its default (%s) includes them: give models.partial.free (a list of predictors) or models.partial.select, or list models.effects without them, e.g. models: {effects: [parallel, nonparallel]}", what, joinWords(defaultEffects))
+				break
+			}
 			d.errAt("models.partial", "%s a partial set: give models.partial.free (a list of predictors) or models.partial.select", what)
 		case len(users) == 0 && (hasFree || hasSelect || hasGroups):
 			d.errAt("models.partial", "is unused, because models.effects includes neither partial nor constrained")

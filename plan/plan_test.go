@@ -264,7 +264,7 @@ func TestBadPlans(t *testing.T) {
 		{"free not a predictor", "free: [a]", "free: [a, z]",
 			[]string{`bad.yaml:9:15: models.partial.free[1]: "z" is not a predictor (predictors: a, b, c)`}},
 		{"no partial set", "models:\n  partial:\n    free: [a]\n", "",
-			[]string{`models.partial: effect structures "partial" and "constrained" need a partial set: give models.partial.free`}},
+			[]string{`models.partial: effect structures "partial" and "constrained" need a partial set, and models.effects is not given, so its default (parallel, partial, constrained, nonparallel) includes them: give models.partial.free (a list of predictors) or models.partial.select, or list models.effects without them, e.g. models: {effects: [parallel, nonparallel]}`}},
 		{"no partial set for constrained", "models:\n  partial:\n    free: [a]\n", "models:\n  effects: [parallel, constrained]\n",
 			[]string{`bad.yaml:8:3: models.partial: effect structure "constrained" needs a partial set`}},
 		{"free and select", "    free: [a]\n", "    free: [a]\n    select: {method: stepwise}\n",
