@@ -87,7 +87,7 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 	for i, n := range r.ParamNames {
 		est, se := r.Estimates[i], r.StdErrors[i]
 		zz := est / se
-		p := 2 * distuv.UnitNormal.Survival(math.Abs(zz))
+		p := fit.TSurvival2(zz, math.Inf(1))
 		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t[%s, %s]\t\n", ParamLabel(r, n), numfmt.Num(est), numfmt.Num(se), numfmt.Fixed(zz, 2), numfmt.PValue(p), numfmt.Num(est-z*se), numfmt.Num(est+z*se))
 	}
 	if err := tw.Flush(); err != nil {

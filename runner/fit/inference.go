@@ -56,7 +56,9 @@ func (r *Result) ReferenceQuantile(pr float64, g []float64) float64 {
 // +Inf).
 func TSurvival2(z, df float64) float64 {
 	if math.IsInf(df, 1) || df > 1e7 {
-		return 2 * distuv.UnitNormal.Survival(math.Abs(z))
+		// erfc, not 1 - Phi: the p-value of z = 9.2 is 3.6e-20, not 0
+		// (1 - Phi loses every digit beyond z of about 8).
+		return math.Erfc(math.Abs(z) / math.Sqrt2)
 	}
 	return 2 * distuv.StudentsT{Mu: 0, Sigma: 1, Nu: df}.Survival(math.Abs(z))
 }

@@ -368,7 +368,7 @@ func (r *Result) marginalEffects(d *Data, binaryOf []bool, level float64) ([]Mar
 			me := MarginalEffect{Predictor: r.Predictors[k], Category: r.Categories[j], Discrete: binary, Effect: ame[j], SE: se}
 			if se > 0 {
 				me.Z = ame[j] / se
-				me.P = 2 * distuv.UnitNormal.Survival(math.Abs(me.Z))
+				me.P = TSurvival2(me.Z, math.Inf(1))
 			} else {
 				me.P = 1 // an effect fixed by the model (no sampling variation)
 			}

@@ -162,7 +162,7 @@ func (r *Result) effectRows(name string, discrete bool, eff, jac []float64, leve
 		me := MarginalEffect{Predictor: name, Category: r.Categories[j], Discrete: discrete, Effect: eff[j], SE: se}
 		if se > 0 {
 			me.Z = eff[j] / se
-			me.P = 2 * distuv.UnitNormal.Survival(math.Abs(me.Z))
+			me.P = TSurvival2(me.Z, math.Inf(1))
 		} else {
 			me.P = 1
 		}

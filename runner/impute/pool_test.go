@@ -388,3 +388,16 @@ func TestPooledLinearIsPoolScalar(t *testing.T) {
 		}
 	}
 }
+
+// TestFSurvivalSmallP: the F tail far out, against base R 4.2 (Debian
+// r-base-core): pf(200, 3, 20, lower.tail = FALSE) =
+// 4.4477194934823165e-15 (as 1 minus the distribution function it was
+// 4.44089e-15, the 20th ulp of 1), and pf(0.5, 3, 20, lower.tail =
+// FALSE) = 0.68651861283640314.
+func TestFSurvivalSmallP(t *testing.T) {
+	for _, c := range []struct{ f, want float64 }{{200, 4.4477194934823165e-15}, {0.5, 0.68651861283640314}} {
+		if got := fSurvival(c.f, 3, 20); math.Abs(got-c.want) > 1e-12*c.want {
+			t.Errorf("P(F(3, 20) > %g) = %.17g, R gives %.17g", c.f, got, c.want)
+		}
+	}
+}
