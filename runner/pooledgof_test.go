@@ -88,6 +88,14 @@ func TestPooledGoodnessOfFit(t *testing.T) {
 			t.Fatal(err)
 		}
 		g := c.got
+		if want.F <= 0 {
+			// A negative D2 gives no test (not 0 with p = 1, which reads as a
+			// perfect fit), with the reason.
+			if g.OK || g.Name != c.name || !strings.HasPrefix(g.Reason, "the D2 statistic is negative: ") {
+				t.Errorf("%s: %+v, want no test with the reason (D2 %+v)", c.name, g, want)
+			}
+			continue
+		}
 		if !g.OK || g.Name != c.name || g.Pooled != "D2" || g.DF != c.df || g.Chi2 != want.F*float64(c.df) || g.P != want.P || g.DF2 != want.DF2 {
 			t.Errorf("%s: %+v, want D2 %+v", c.name, g, want)
 		}

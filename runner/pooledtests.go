@@ -5,6 +5,7 @@ import (
 	"math"
 	"slices"
 
+	"ordplan/render/numfmt"
 	"ordplan/runner/fit"
 	"ordplan/runner/impute"
 )
@@ -28,8 +29,9 @@ func (or *OutcomeResult) perSetOf(f *FitEntry) []*FitEntry {
 }
 
 // pooledChi2 pools a chi-square test computed on each imputed set by D2.
-// A negative statistic (possible for approximate likelihood-ratio
-// constructions) counts as 0.
+// A negative statistic of a set (possible for approximate likelihood-ratio
+// constructions) counts as 0; a negative D2 gives no test, with the
+// reason (not 0 with p = 1).
 func pooledChi2(name string, per []fit.Test) fit.Test {
 	chi := make([]float64, len(per))
 	for k, t := range per {
@@ -44,6 +46,12 @@ func pooledChi2(name string, per []fit.Test) fit.Test {
 	d, err := impute.D2(chi, per[0].DF)
 	if err != nil {
 		return fit.Test{Name: name, Reason: err.Error()}
+	}
+	if d.F <= 0 && d.Warnings != "" {
+		// D2 below 0, set to 0 with p = 1, would read as a perfect fit;
+		// it says only that the sets disagree too much for D2.
+		return fit.Test{Name: name, Reason: fmt.Sprintf("the D2 statistic is negative: the %d imputed sets' statistics (from %s to %s on %d df) vary more than their size allows, so D2 cannot pool them",
+			len(chi), numfmt.Num(slices.Min(chi)), numfmt.Num(slices.Max(chi)), per[0].DF)}
 	}
 	t := fTest(0, d, math.NaN(), math.NaN())
 	t.Name = name
