@@ -320,6 +320,15 @@ func plural(n int) string {
 	return ""
 }
 
+// program is the program and its version, with the source revision of
+// the build when the toolchain stamped it (runner.Revision).
+func program(r *runner.Result) string {
+	if r.Revision != "" {
+		return "ordplan " + r.Version + " (" + r.Revision + ")"
+	}
+	return "ordplan " + r.Version
+}
+
 // writeReproducibility says exactly what produced the report.
 func writeReproducibility(d *doc, r *runner.Result) {
 	d.h(2, "Reproducibility")
@@ -331,7 +340,7 @@ func writeReproducibility(d *doc, r *runner.Result) {
 		cmd = md(mdCode(cmd))
 	}
 	rows := [][]string{
-		{"Program", "ordplan " + r.Version},
+		{"Program", program(r)},
 		{"Built with", r.GoVersion},
 		{"Operating system / architecture", r.Platform},
 		{"Command line", cmd},

@@ -310,8 +310,10 @@ type RunRecord struct {
 	Outputs      map[string]string   `json:"outputs_sha256"`
 	Timestamp    string              `json:"timestamp,omitempty"`
 	GoVersion    string              `json:"go_version"`
-	Platform     string              `json:"os_arch"`
-	Command      string              `json:"command_line,omitempty"`
+	// Revision: the source revision of the build, when stamped (Revision).
+	Revision string `json:"revision,omitempty"`
+	Platform string `json:"os_arch"`
+	Command  string `json:"command_line,omitempty"`
 	// MadeBy is the command whose outputs these are ("run", "rehearse",
 	// "power"): an output folder holds one command's outputs (absent in
 	// records written before it was kept, all of run or rehearse).
@@ -332,7 +334,7 @@ func RunJSON(r *Result, madeBy string, files map[string][]byte) ([]byte, error) 
 			rec.Imputation = append(rec.Imputation, or.Imputed.Chained)
 		}
 	}
-	rec.GoVersion, rec.Platform, rec.Command, rec.MadeBy = r.GoVersion, r.Platform, r.Command, madeBy
+	rec.GoVersion, rec.Revision, rec.Platform, rec.Command, rec.MadeBy = r.GoVersion, r.Revision, r.Platform, r.Command, madeBy
 	rec.Registration = registrationRecord(r.Registration)
 	return rec.withOutputs(files)
 }
@@ -345,7 +347,7 @@ func RunJSON(r *Result, madeBy string, files map[string][]byte) ([]byte, error) 
 func SimulationRunJSON(p *plan.Plan, reg *lock.Status, command string, files map[string][]byte) ([]byte, error) {
 	rec := RunRecord{Program: "ordplan", Version: Version,
 		Plan: PlanRef{File: filepath.Base(p.Path), Title: p.Title, SHA256: p.Hash}, Seed: p.Seed,
-		GoVersion: runtime.Version(), Platform: runtime.GOOS + "/" + runtime.GOARCH, Command: command, MadeBy: "power",
+		GoVersion: runtime.Version(), Revision: Revision(), Platform: runtime.GOOS + "/" + runtime.GOARCH, Command: command, MadeBy: "power",
 		Registration: registrationRecord(reg)}
 	return rec.withOutputs(files)
 }

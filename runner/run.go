@@ -48,7 +48,7 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 	}
 	defer unpin()
 	res := &Result{Plan: p, Analysis: an, DataParts: parts, Version: Version,
-		GoVersion: runtime.Version(), Platform: runtime.GOOS + "/" + runtime.GOARCH}
+		GoVersion: runtime.Version(), Revision: Revision(), Platform: runtime.GOOS + "/" + runtime.GOARCH}
 	if an.Inference.PredictPath != "" {
 		h, unpinNew, err := data.Pin(an.Inference.PredictPath)
 		if err != nil {

@@ -26,6 +26,7 @@ type Result struct {
 	Started  string   // UTC start time, only when the plan asks for timestamps
 
 	GoVersion string // the Go release the program was built with
+	Revision  string // the source revision of the build (Revision; "": not stamped)
 	Platform  string // operating system/architecture
 	Command   string // the command line, when the ordplan command ran the plan
 

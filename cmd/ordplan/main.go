@@ -67,7 +67,11 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 	case "schema":
 		return cmdSchema(args[1:], stdout, stderr)
 	case "version", "--version", "-version":
-		fmt.Fprintln(stdout, "ordplan", runner.Version)
+		if rev := runner.Revision(); rev != "" {
+			fmt.Fprintln(stdout, "ordplan", runner.Version, "("+rev+")")
+		} else {
+			fmt.Fprintln(stdout, "ordplan", runner.Version)
+		}
 		return exitOK
 	case "help":
 		return cmdHelp(args[1:], stdout, stderr)
