@@ -5,6 +5,7 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -166,7 +167,8 @@ func TestInitFollowsDialect(t *testing.T) {
 // values are the words of an ordered scale wins over integer codes (here a
 // count of visits), although the file has fewer than two rows per value;
 // integer codes still win over text naming places, and a name that says
-// rating wins among integer codes.
+// rating wins among integer codes; a numeric column named as weights is
+// never the outcome nor a predictor, and the plan offers it as data.weights.
 func TestInitGuessesScaleOutcome(t *testing.T) {
 	dir := t.TempDir()
 	for i, c := range []struct {
@@ -175,6 +177,9 @@ func TestInitGuessesScaleOutcome(t *testing.T) {
 		{"id,visits,dose,pain\n1,1,0.5,never\n2,3,1.5,sometimes\n3,2,2.5,often\n4,4,0.5,always\n5,1,1.0,sometimes\n6,2,2.0,never\n", "pain"},
 		{"id,visits,dose,relief\n1,1,0.5,not at all\n2,3,1.5,a little\n3,2,2.5,somewhat\n4,4,0.5,very much\n5,1,1.0,a little\n6,2,2.0,somewhat\n", "relief"},
 		{"site,arm,grade\nnorth,1,2\nsouth,2,1\neast,3,3\nnorth,1,2\nsouth,2,1\neast,3,3\nnorth,1,1\n", "grade"},
+		// Integer codes under a weight name are weights, not the outcome;
+		// slight and complete are scale words.
+		{"fw,age,relief\n1,30,none\n2,41,slight\n3,52,moderate\n1,33,complete\n2,45,slight\n3,61,none\n", "relief"},
 	} {
 		d := filepath.Join(dir, "d"+strconv.Itoa(i)+".csv")
 		os.WriteFile(d, []byte(c.csv), 0o644)
@@ -190,6 +195,12 @@ func TestInitGuessesScaleOutcome(t *testing.T) {
 		if got := pl.Outcomes[0].Column; got != c.want {
 			text, _ := os.ReadFile(p)
 			t.Errorf("case %d: outcome %q, want %q\n%s", i, got, c.want, text)
+		}
+		if strings.HasPrefix(c.csv, "fw,") {
+			text, _ := os.ReadFile(p)
+			if slices.Contains(pl.PredictorsOf(pl.Outcomes[0]), "fw") || !strings.Contains(string(text), "fw looks like weights") {
+				t.Errorf("the weights column: predictors %v\n%s", pl.PredictorsOf(pl.Outcomes[0]), text)
+			}
 		}
 	}
 }

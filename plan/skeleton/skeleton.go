@@ -7,6 +7,7 @@ import (
 	"strings"
 	"unicode"
 
+	"ordplan/internal/words"
 	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
@@ -105,13 +106,15 @@ func Write(in Input) ([]byte, error) {
 			outcome = outcomeByName(in.Columns)
 		}
 	}
-	var preds, skipped []string
+	var preds, skipped, weighty []string
 	var cats []int // text columns used as categorical predictors
 	for i, c := range in.Columns {
 		if i == outcome {
 			continue
 		}
 		switch {
+		case c.Numeric && weightLike(c):
+			weighty = append(weighty, c.Name)
 		case kinds[i].Word == "numeric" || kinds[i].Word == "binary" || kinds[i].Word == "ordered?" || kinds[i].Word == "unknown":
 			preds = append(preds, c.Name)
 		case kinds[i].Word == "categorical" && !c.Many && c.Distinct >= 2 && c.Distinct <= 12 && 2*c.Distinct <= c.Rows-c.Missing:
@@ -160,6 +163,8 @@ func Write(in Input) ([]byte, error) {
 			role = "  <- outcome (guessed: see outcomes)"
 		case i == outcome:
 			role = "  <- outcome"
+		case contains(weighty, c.Name):
+			role = "  (weights? not a predictor below: see data.weights)"
 		case contains(skipped, c.Name):
 			role = "  (not a predictor below: declare it or leave it out)"
 		}
@@ -171,7 +176,15 @@ func Write(in Input) ([]byte, error) {
 	writeDialect(w, in)
 	w("  missing: drop           # drop rows with a missing value (counted in the report), refuse, or impute (multiple imputation by chained equations, data.imputation)")
 	w("  missing_values: [\"\", \"NA\", \"NaN\", \".\"]   # cells that mean \"missing\"")
-	w("  weights: null           # a column of case weights")
+	if len(weighty) > 0 {
+		look := " looks"
+		if len(weighty) > 1 {
+			look = " look"
+		}
+		w("  weights: null           # a column of case weights (and weight_kind: frequency or sampling); %s%s like weights", words.AndList(weighty), look)
+	} else {
+		w("  weights: null           # a column of case weights")
+	}
 	w("  offset: null            # a column added to every linear predictor")
 	w("  cluster: null           # a column of cluster ids (needs covariance: clustered)")
 	w("")
@@ -335,7 +348,9 @@ func writeDialect(w func(string, ...any), in Input) {
 //   - a name that says rating or order (a word beginning rating, score,
 //     grade, level, severity, stage, ...): +1; integer codes under a name
 //     that says count, measure or identifier (count, number, visits, days,
-//     age, year, n, id, ...): -2.
+//     age, year, n, id, ...): -2;
+//   - numbers under a name that says weights (weight, wt, fw, sw, ...:
+//     weightLike): never (they are offered as data.weights).
 //
 // So a four-value text scale on a small file beats an integer column, and
 // integer codes beat a text column of places or groups. When no column is
@@ -350,6 +365,8 @@ func outcomeScore(c data.Profile, k Kind) int {
 	switch {
 	case c.Numeric && c.Distinct == c.Rows-c.Missing:
 		return 0 // every row its own value: an identifier or a measure
+	case c.Numeric && weightLike(c):
+		return 0 // case weights: data.weights, not the outcome
 	case c.Numeric:
 		score = 2
 		if hasAny(name, countNames) {
@@ -375,7 +392,8 @@ func init() {
 		none low medium moderate high little some much mild severe worse same better
 		unchanged improved worsened small large safe unsafe likely unlikely satisfied
 		dissatisfied unsatisfied happy unhappy important unimportant comfortable uncomfortable
-		easy difficult hard
+		easy difficult hard slight slightly partial partly complete full minimal minor major marked
+		substantial strong weak
 		very extremely somewhat slightly fairly quite not strongly completely totally rather`) {
 		scaleWords[w] = true
 	}
@@ -409,6 +427,16 @@ func outcomeByName(cols []data.Profile) int {
 		return -1
 	}
 	return 0
+}
+
+// weightNames begin words of the names of weight columns (one or two
+// letters: the whole word).
+var weightNames = []string{"weight", "wgt", "wt", "fw", "sw", "pw"}
+
+// weightLike reports whether a numeric column looks like case weights: a
+// weight name and no negative value.
+func weightLike(c data.Profile) bool {
+	return c.Numeric && c.Min >= 0 && hasAny(strings.ToLower(c.Name), weightNames)
 }
 
 // idNames begin words of the names of identifier columns.
