@@ -11,6 +11,7 @@ import (
 	"path/filepath"
 	"regexp"
 	"strconv"
+	"strings"
 
 	"gopkg.in/yaml.v3"
 
@@ -103,12 +104,34 @@ func readYAML(src []byte, path string) (root *yaml.Node, e *Error) {
 	return doc.Content[0], nil
 }
 
+// parserErrors begin the messages of the YAML library's parser (the
+// scanner's are other words), whose lines it counts from 0.
+var parserErrors = []string{"did not find expected <document start>", "did not find expected node content",
+	"did not find expected key", "did not find expected '-' indicator", "did not find expected ',' or ']'",
+	"did not find expected ',' or '}'", "found incompatible YAML document", "found duplicate %YAML directive",
+	"found duplicate %TAG directive", "found undefined tag handle"}
+
+func parserError(msg string) bool {
+	for _, p := range parserErrors {
+		if strings.HasPrefix(msg, p) {
+			return true
+		}
+	}
+	return false
+}
+
 func syntaxError(path string, err error) *Error {
 	msg := err.Error()
 	e := &Error{File: path}
 	if m := yamlLine.FindStringSubmatch(msg); m != nil {
 		e.Line, _ = strconv.Atoi(m[1])
 		msg = m[2]
+		if parserError(msg) {
+			// The YAML library numbers the lines of its parser's errors
+			// (not its scanner's) from 0: an unclosed { on line 3 was
+			// said at line 2.
+			e.Line++
+		}
 	} else if len(msg) > 6 && msg[:6] == "yaml: " {
 		msg = msg[6:]
 	}

@@ -618,3 +618,20 @@ func TestInferenceSection(t *testing.T) {
 		}
 	}
 }
+
+// The line of a YAML syntax error is the line of the file, counted from
+// 1: the library counts its parser's errors from 0 (an unclosed { opened on
+// line 3 was said at line 2) and its scanner's from 1.
+func TestYAMLSyntaxErrorLines(t *testing.T) {
+	for _, c := range []struct{ src, want string }{
+		{"version: 1\ntitle: t\ndata: {file: d.csv\noutcomes: [{column: y}]\n", "p.yaml:3: not valid YAML: did not find expected ',' or '}'"},
+		{"version: 1\ndata:\n  file: x\n  missing_values: [drop\noutcomes: []\n", "p.yaml:4: not valid YAML: did not find expected ',' or ']'"},
+		{"version: 1\ndata:\n  file: x\n bad: y\n", "p.yaml:4: not valid YAML: did not find expected key"},
+		{"version: 1\n  title: t\ndata: x\n", "p.yaml:2: not valid YAML: mapping values are not allowed in this context"},
+	} {
+		_, err := Parse([]byte(c.src), "p.yaml")
+		if err == nil || err.Error() != c.want {
+			t.Errorf("%q:\n got %v\nwant %s", c.src, err, c.want)
+		}
+	}
+}
