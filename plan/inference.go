@@ -139,7 +139,7 @@ func (d *decoder) decodeInference(n *yaml.Node, inf *Inference, dir string) {
 					}
 					inf.Profile = append(inf.Profile, ProfileValue{Predictor: k.Value, Value: x, written: dv.Value})
 				default:
-					d.number(dv, path) // says what was given instead
+					d.numberWant(dv, path, "a number, or a level of a categorical column") // says what was given instead
 				}
 			}
 		}

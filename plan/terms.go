@@ -168,7 +168,7 @@ func (d *decoder) decodeTerm(n *yaml.Node, path string) (design.TermSpec, bool) 
 				d.errorf(dv, m.at("centre"), "want mean or a number, got %s", describe(dv))
 			}
 			tr.Centre = "mean"
-		} else if x, ok := d.number(v, m.at("centre")); ok {
+		} else if x, ok := d.numberWant(v, m.at("centre"), "mean or a number"); ok {
 			tr.Centre, tr.CentreAt = "value", x
 		}
 		parts = append(parts, "c")

@@ -31,6 +31,7 @@ func wrongValues(k Kind) []string {
 var placed = regexp.MustCompile(`^bad\.yaml:\d+:\d+: \S+: \S`)
 
 // A value of the wrong kind, at every key of the plan's sections, of the
+// items of its lists of mappings (outcomes, subset, deviations), of the
 // data dictionary and categorical entries, and of every rule's options
 // (Spec: new keys are tried as they are added), is refused with its
 // file:line:column and key, saying what is wanted in words (no YAML tags,
@@ -53,6 +54,30 @@ func TestWrongKindsCarryTheirPlace(t *testing.T) {
 						body = "  file: d.csv\n"
 					}
 					trials = append(trials, trial{s.Name + "." + c.Name, src + s.Name + ":\n" + body + "  " + c.Name + ": " + v + "\n"})
+				}
+			}
+		case KindList:
+			if s.Item == nil || s.Item.Kind != KindMapping {
+				continue
+			}
+			for _, c := range s.Item.Keys {
+				for _, v := range wrongValues(c.Kind) {
+					src := base + s.Name + ":\n  - {" + c.Name + ": " + v + "}\n"
+					switch s.Name {
+					case "predictors":
+						item := "  - {column: a, " + c.Name + ": " + v + "}\n"
+						if c.Name == "column" {
+							item = "  - {column: " + v + "}\n"
+						}
+						src = strings.Replace(base, "predictors: [a, b, c]\n", "predictors:\n"+item+"  - b\n  - c\n", 1)
+					case "outcomes":
+						item := "  - column: y\n    " + c.Name + ": " + v + "\n"
+						if c.Name == "column" {
+							item = "  - column: " + v + "\n"
+						}
+						src = strings.Replace(base, "  - column: y\n", item, 1)
+					}
+					trials = append(trials, trial{s.Name + "[0]." + c.Name, src})
 				}
 			}
 		case KindMap:
