@@ -133,6 +133,11 @@ func writeFreeSets(d *doc, or *runner.OutcomeResult) {
 		for _, st := range s.Result.Steps {
 			var parts []string
 			for _, t := range st.Tests {
+				if !t.OK {
+					// Never read as a statistic: the step passed over it.
+					parts = append(parts, fmt.Sprintf("%s not computed (%s)", t.Name, mdText(t.Reason)))
+					continue
+				}
 				parts = append(parts, fmt.Sprintf("%s %s, %s", t.Name, runner.TestStatistic(t), numfmt.PText(t.P)))
 			}
 			imposed := st.Imposed

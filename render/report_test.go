@@ -304,3 +304,23 @@ report: {focus_predictor: age, panels_by: street_type}
 	hasAll(t, "report.md", md, "One panel per level of `street_type` (report.panels_by)",
 		"#### street_type = residential", "#### street_type = through_road", "#### street_type = cul_de_sac")
 }
+
+// A test of equal slopes that a stepwise step could not compute (here: more
+// restrictions than the clusters less one) is shown as not computed, with
+// its reason, never as chi2(0) = 0.000, p < 0.0001.
+func TestStepwiseShowsTestsNotComputed(t *testing.T) {
+	why := "6 restrictions need at least 7 clusters, and the data have 3: a cluster-robust covariance from G clusters has rank at most G-1"
+	or := &runner.OutcomeResult{Stepwise: []runner.StepwiseRecord{{Approach: fit.Cumulative, Link: fit.Logit, Result: &fit.StepwiseResult{
+		OK: true, Alpha: 0.05, Test: fit.TestWald,
+		Steps: []fit.StepwiseStep{{Step: 1, LogLik: -681.46, Tests: []fit.Test{
+			{Name: "dose", Reason: why},
+			{Name: "age", OK: true, Chi2: 0.477, DF: 2, P: 0.7876},
+		}}},
+	}}}}
+	d := &doc{}
+	writeFreeSets(d, or)
+	md := string(d.markdown())
+	if !strings.Contains(md, "| dose not computed ("+why+"); age chi2(2) = 0.477, p = 0.7876 |") || strings.Contains(md, "chi2(0)") {
+		t.Errorf("the step's tests:\n%s", md)
+	}
+}
