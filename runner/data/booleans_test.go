@@ -136,3 +136,14 @@ func TestBoolWord(t *testing.T) {
 		t.Error("tRUE read as a number")
 	}
 }
+
+// A missing-value marker spelling a boolean marks that text (and its
+// other spellings are no marker): it does not mark every 1 or 0 of a
+// column read as numbers, as a marker -99 marks -99.0.
+func TestBooleanMarkerMarksItsText(t *testing.T) {
+	raw := []byte("y,b\n1,TRUE\n2,1\n1,0\n2,FALSE\n")
+	d, err := readBytes(raw, "d.csv", Options{Outcome: "y", Predictors: []string{"b"}, MissingTokens: []string{"TRUE"}})
+	if err != nil || !slices.Equal(d.X, []float64{1, 0, 0}) || d.RowsDropped != 1 {
+		t.Errorf("%v %+v", err, d)
+	}
+}

@@ -232,7 +232,11 @@ func (r *reader) readNumbers(cols ...string) {
 	for _, col := range cols {
 		var codes []float64
 		add := func(tok string) {
-			if v, msg := r.opt.Dialect.number(strings.TrimSpace(tok)); msg == "" && !slices.Contains(codes, v) {
+			tok = strings.TrimSpace(tok)
+			if _, b := boolWord(tok); b {
+				return // a marker TRUE marks the text, not every 1
+			}
+			if v, msg := r.opt.Dialect.number(tok); msg == "" && !slices.Contains(codes, v) {
 				codes = append(codes, v)
 			}
 		}
