@@ -47,6 +47,9 @@ func PowerOutputs(pr *simulate.PowerResult, reg *lock.Status) (map[string][]byte
 	if len(pr.Missing) > 0 {
 		d.p("%s In every replicate the plan's `data.missing` handled them as it will handle the real data's, so the rates below count the information the missing values take away.", simulatedMissingText(pr.Missing))
 	}
+	if pr.Weights != nil {
+		d.p("%s", simulatedWeightsText(pr.Weights))
+	}
 	writePowerSizes(d, pr)
 	d.p("Every rate is a share of the %d replicates of a size, with its Monte Carlo standard error sqrt(p(1-p)/R) in brackets.", pr.Replicates)
 	for _, op := range pr.Outcomes {

@@ -5,6 +5,7 @@ import (
 	"testing"
 
 	"ordplan/plan/lock"
+	"ordplan/runner"
 	"ordplan/runner/simulate"
 )
 
@@ -88,5 +89,44 @@ func TestPowerReportSubsetAndNoModel(t *testing.T) {
 	files, _ = PowerOutputs(pr, nil)
 	if md := string(files["power.md"]); !strings.Contains(md, "A sample size n is the number of rows drawn from the assumptions; the plan has no subset, so every row is analysed") {
 		t.Errorf("without a subset:\n%s", md)
+	}
+}
+
+// Both reports say how the weights were simulated. The design effect of
+// unequal weights is 1 + CV^2 (Kish's approximation; cited from memory):
+// values 1, 2, 3 equally often have mean 2 and variance 2/3, so 1 + 1/6
+// = 1.17; frequency weights make about mean-weight (2.00) units a row.
+func TestSimulatedWeightsWords(t *testing.T) {
+	third := []float64{1.0 / 3, 1.0 / 3, 1.0 / 3}
+	for _, tc := range []struct {
+		w    runner.SimulatedWeights
+		want []string
+	}{
+		{runner.SimulatedWeights{Column: "fw", Kind: "frequency"},
+			[]string{"The weights column `fw` (frequency weights) was 1 in every simulated row: the dictionary (`dictionary.fw`) states neither values nor a range for it, so the simulated data are unweighted."}},
+		{runner.SimulatedWeights{Column: "sw", Kind: "sampling"},
+			[]string{"the real data's power is below these numbers"}},
+		{runner.SimulatedWeights{Column: "fw", Kind: "frequency", Drawn: true, Values: []string{"1", "2", "3"}, Proportions: third},
+			[]string{"drawn for each row from the dictionary's values, in the shares 1 (0.3333), 2 (0.3333), 3 (0.3333), independently of the predictors and the outcomes", "about 2.00 times the rows"}},
+		{runner.SimulatedWeights{Column: "sw", Kind: "sampling", Drawn: true, Values: []string{"1", "2", "3"}, Proportions: third},
+			[]string{"a design effect of 1 + CV^2 of the weights, about 1.17)", "they do not count strata or clusters"}},
+		{runner.SimulatedWeights{Column: "sw", Kind: "sampling", Drawn: true, Range: []float64{0.5, 3}},
+			[]string{"uniformly over the dictionary's range [0.5, 3]", "about 1.17)"}},
+	} {
+		got := simulatedWeightsText(&tc.w)
+		for _, w := range tc.want {
+			if !strings.Contains(got, w) {
+				t.Errorf("%+v: lacks %q:\n%s", tc.w, w, got)
+			}
+		}
+		pr := &simulate.PowerResult{PlanFile: "p.yaml", Generator: "cumulative logit", Replicates: 2, Sizes: []int{100}, Weights: &tc.w,
+			Outcomes: []simulate.OutcomePower{{Outcome: "y", Sizes: []simulate.SizeResult{{N: 100}}}}}
+		files, err := PowerOutputs(pr, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !strings.Contains(string(files["power.md"]), got) {
+			t.Errorf("power.md lacks the weights' sentence")
+		}
 	}
 }

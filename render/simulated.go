@@ -31,6 +31,50 @@ func writeSimulated(d *doc, r *runner.Result) {
 	if len(s.Missing) > 0 {
 		d.p("%s The run handled them as `data.missing` says, as it will handle the real data's missing values.", simulatedMissingText(s.Missing))
 	}
+	if s.Weights != nil {
+		d.p("%s", simulatedWeightsText(s.Weights))
+	}
+}
+
+// simulatedWeightsText says how the plan's weights column was simulated
+// and what that means for the numbers: drawn from the dictionary, each
+// row independently of every other column, or 1 in every row.
+func simulatedWeightsText(w *runner.SimulatedWeights) string {
+	name := mdCode(w.Column)
+	key := mdCode("dictionary." + w.Column)
+	if !w.Drawn {
+		t := fmt.Sprintf("The weights column %s (%s weights) was 1 in every simulated row: the dictionary (%s) states neither values nor a range for it, so the simulated data are unweighted.", name, w.Kind, key)
+		if w.Kind == "sampling" {
+			return t + " Unequal sampling weights lower the precision (a design effect), so the real data's power is below these numbers; give the weights' values or range in the dictionary to simulate them."
+		}
+		return t + " Frequency weights above 1 make the units analysed outnumber the rows; give the weights' values or range in the dictionary to simulate them."
+	}
+	var from string
+	var mean, variance float64
+	if w.Range != nil {
+		a, b := w.Range[0], w.Range[1]
+		from = fmt.Sprintf("uniformly over the dictionary's range [%s, %s]", strconv.FormatFloat(a, 'g', -1, 64), strconv.FormatFloat(b, 'g', -1, 64))
+		mean, variance = (a+b)/2, (b-a)*(b-a)/12
+	} else {
+		shares := make([]string, len(w.Values))
+		for i, v := range w.Values {
+			x, _ := strconv.ParseFloat(v, 64)
+			mean += w.Proportions[i] * x
+			variance += w.Proportions[i] * x * x
+			shares[i] = fmt.Sprintf("%s (%s)", v, strconv.FormatFloat(w.Proportions[i], 'g', 4, 64))
+		}
+		variance -= mean * mean
+		from = "from the dictionary's values, in the shares " + strings.Join(shares, ", ")
+	}
+	t := fmt.Sprintf("The weights column %s (%s weights) was drawn for each row %s, independently of the predictors and the outcomes (from a stream of its own).", name, w.Kind, from)
+	if w.Kind == "sampling" {
+		deff := "undefined (mean weight 0)"
+		if mean > 0 {
+			deff = "about " + strconv.FormatFloat(1+variance/(mean*mean), 'f', 2, 64)
+		}
+		return t + fmt.Sprintf(" The fits maximize the weighted pseudo-likelihood with sandwich errors, so the numbers count the precision unequal weights take away (a design effect of 1 + CV^2 of the weights, %s); they do not count strata or clusters of the sampling design, nor weights related to the outcome.", deff)
+	}
+	return t + fmt.Sprintf(" A frequency weight counts identical units: a row of weight w stands for w units with the same values and outcome, so the units analysed number the sum of the weights, about %s times the rows.", strconv.FormatFloat(mean, 'f', 2, 64))
 }
 
 // simulatedMissingText says which missing values the simulation put into

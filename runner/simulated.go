@@ -19,6 +19,22 @@ type Simulation struct {
 	// Missing is the missingness the assumptions state (assumptions.missing),
 	// column by column, with how many values were made missing.
 	Missing []SimulatedMissing `json:"missing,omitempty"`
+	// Weights says how the plan's weights column was simulated (nil:
+	// the plan has none).
+	Weights *SimulatedWeights `json:"weights,omitempty"`
+}
+
+// SimulatedWeights is how a plan's weights column was simulated: drawn
+// for each row independently of every other column, from the
+// dictionary's values (with Proportions) or uniformly over its Range,
+// or (Drawn false) 1 in every row, the dictionary stating neither.
+type SimulatedWeights struct {
+	Column      string    `json:"column"`
+	Kind        string    `json:"kind"` // frequency or sampling
+	Drawn       bool      `json:"drawn"`
+	Values      []string  `json:"values,omitempty"`
+	Proportions []float64 `json:"proportions,omitempty"`
+	Range       []float64 `json:"range,omitempty"`
 }
 
 // SimulatedMissing is the missingness simulated in one column: its stated

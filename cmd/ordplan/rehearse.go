@@ -116,6 +116,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 		}
 	}
 	res.Simulated.Missing = sim.MissingRecord(written.Missing, analysed)
+	res.Simulated.Weights = sim.WeightsRecord()
 	dec := runner.BuildDecisions(res)
 	files, err := render.Outputs(res, dec, nil)
 	if err != nil {

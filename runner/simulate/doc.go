@@ -11,8 +11,12 @@
 // together through a Gaussian copula: correlated standard normal scores
 // (the Cholesky factor of the stated matrix) turned into each column's own
 // distribution by its quantile function; the others independently.
-// Weights are 1, the offset 0, and cluster ids number consecutive groups
-// of ten rows (with no cluster effect).
+// The weights column is drawn for each row, independently of every other
+// column and from a stream of its own, from its dictionary values (equally
+// often) or uniformly over its dictionary range, and is 1 when the
+// dictionary states neither (Sim.WeightsRecord says which; the reports
+// say it). The offset is 0, and cluster ids number consecutive groups of
+// ten rows (with no cluster effect).
 //
 // Outcomes: the raw columns become design columns through runner/design,
 // the same path as real data, its data-determined constants (means, SDs,

@@ -131,9 +131,12 @@ type PowerResult struct {
 	Correlations []string `json:"correlations,omitempty"`
 	// Missing is the missingness the assumptions state, drawn in every
 	// replicate (assumptions.missing).
-	Missing    []runner.SimulatedMissing `json:"missing,omitempty"`
-	Replicates int                       `json:"replicates"`
-	Alpha      float64                   `json:"alpha"`
+	Missing []runner.SimulatedMissing `json:"missing,omitempty"`
+	// Weights says how the plan's weights column was simulated (nil: the
+	// plan has none).
+	Weights    *runner.SimulatedWeights `json:"weights,omitempty"`
+	Replicates int                      `json:"replicates"`
+	Alpha      float64                  `json:"alpha"`
 	// Multiplicity is the plan's correction of its hypotheses' p-values
 	// (inference.multiplicity: holm or benjamini_hochberg; "" for none):
 	// a hypothesis is rejected when its adjusted p-value is below Alpha,
@@ -198,6 +201,7 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 		res.Correlations = append(res.Correlations, fmt.Sprintf("%s, %s: r = %g", c.A, c.B, c.R))
 	}
 	res.Missing = sim.MissingRecord(nil, 0)
+	res.Weights = sim.WeightsRecord()
 	res.SizeMeans = "rows drawn from the assumptions; every row is analysed (less any incomplete rows data.missing drops)"
 	if len(p.Subset) > 0 {
 		res.SizeMeans = "rows drawn from the assumptions, before the plan's subset: the rows analysed are those the subset keeps (subset_kept; less any incomplete rows data.missing drops)"

@@ -85,8 +85,12 @@ type Sim struct {
 	keepCol []int
 	// Missing is the stated missingness, column by column.
 	Missing []missingColumn
-	Weights string // columns written with constant values
-	Offset  string
+	Weights string // the weights column, drawn as weight says
+	// weight is how the weights column is drawn: from the dictionary's
+	// values (equally often) or uniformly over its range; nil when the
+	// dictionary states neither: every weight is 1.
+	weight  *Predictor
+	Offset  string // written as 0
 	Cluster string
 	seed    uint64
 }
@@ -128,6 +132,9 @@ func New(p *plan.Plan) (*Sim, error) {
 	if err := s.correlate(a.Correlations); err != nil {
 		return nil, err
 	}
+	if err := s.prepareWeights(); err != nil {
+		return nil, err
+	}
 	for _, c := range p.Subset {
 		k := slices.IndexFunc(s.Predictors, func(pr Predictor) bool { return pr.Column == c.Column })
 		if k < 0 {
@@ -150,6 +157,56 @@ func New(p *plan.Plan) (*Sim, error) {
 		return nil, err
 	}
 	return s, nil
+}
+
+// prepareWeights says how the weights column is drawn: from the
+// dictionary's values or range when it states one (each row
+// independently of every other column), else 1 in every row.
+func (s *Sim) prepareWeights() error {
+	p, w := s.Plan, s.Weights
+	if w == "" || slices.ContainsFunc(s.Predictors, func(pr Predictor) bool { return pr.Column == w }) {
+		return nil
+	}
+	e := p.EntryOf(w)
+	if e == nil || (e.Values == nil && e.Range == nil) {
+		return nil
+	}
+	pr, err := predictorOf(p, w)
+	if err != nil {
+		return err
+	}
+	var low float64
+	var what string
+	if pr.Kind == "uniform" {
+		low = pr.Range[0]
+		what = fmt.Sprintf("range, which starts below 0 (%g)", low)
+	} else {
+		low = slices.Min(pr.Numbers)
+		what = fmt.Sprintf("values, which include %g", low)
+	}
+	if low < 0 {
+		return fmt.Errorf("%s: dictionary.%s: the simulated weights (data.weights: %s) are drawn from the dictionary's %s, but a weight is zero or more: give dictionary.%s values or a range of zero or more", p.Path, w, w, what, w)
+	}
+	s.weight = &pr
+	return nil
+}
+
+// WeightsRecord says how the weights were simulated (nil: the plan has
+// no weights column).
+func (s *Sim) WeightsRecord() *runner.SimulatedWeights {
+	if s.Weights == "" {
+		return nil
+	}
+	rec := &runner.SimulatedWeights{Column: s.Weights, Kind: s.Plan.Data.WeightKind}
+	if pr := s.weight; pr != nil {
+		rec.Drawn = true
+		if pr.Kind == "uniform" {
+			rec.Range = slices.Clone(pr.Range)
+		} else {
+			rec.Values, rec.Proportions = slices.Clone(pr.Values), slices.Clone(pr.Proportions)
+		}
+	}
+	return rec
 }
 
 // GeneratingModel names the generating model in words, e.g. "cumulative
@@ -972,6 +1029,7 @@ type Written struct {
 func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) (Written, error) {
 	rng := rand.New(rand.NewPCG(s.seed, uint64(n)<<32^replicate^0x5eed))
 	mrng := rand.New(rand.NewPCG(s.seed, uint64(n)<<32^replicate^0x6d155))
+	wrng := rand.New(rand.NewPCG(s.seed, uint64(n)<<32^replicate^0x3e1647))
 	counts := make([]int, len(s.Missing))
 	met := 0
 	ys := make([]int, len(s.Outcomes))
@@ -1064,7 +1122,7 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) (Written, error
 			met++
 		}
 		if s.Weights != "" {
-			cells = append(cells, "1")
+			cells = append(cells, s.drawWeight(wrng))
 		}
 		if s.Offset != "" {
 			cells = append(cells, "0")
@@ -1081,6 +1139,20 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) (Written, error
 		bw.WriteByte('\n')
 	}
 	return Written{Missing: counts, Kept: met}, bw.Flush()
+}
+
+// drawWeight gives one row's weight as the file holds it: 1 when the
+// dictionary states nothing to draw it from.
+func (s *Sim) drawWeight(rng *rand.Rand) string {
+	pr := s.weight
+	if pr == nil {
+		return "1"
+	}
+	l, x := pr.draw(rng)
+	if l >= 0 {
+		return csvCell(pr.Values[l])
+	}
+	return strconv.FormatFloat(x, 'g', 7, 64)
 }
 
 func csvCell(s string) string {
