@@ -243,6 +243,12 @@ func termItems(dir string) []badInput {
 					t.Errorf("report.md does not say why site's levels are not compared (%v); want %q", err, want)
 				}
 			}},
+		{id: "T24", name: "spline knots given as values outside the range of the rows used", args: []string{"check"}, setup: writeTermsData,
+			plan: termsEdit("[site, x]", "[site, {name: xs, column: x, spline: {knots: [1, 2, 5]}}]"), code: 1,
+			want: []string{`T24.yaml:6:20: predictors[1]: column "x": the knots [1, 2, 5] of spline term "xs" are not all within the range of the rows used, -0.5 to 3.5: knot 5 lies outside it: a knot beyond the data puts a bend of the curve where no row is, and can leave a basis column 0 in every row or a copy of the straight line; give knots from -0.5 to 3.5, or knots at quantiles of the data (data cat.csv, outcome "y")` + "\n"}},
+		{id: "T24", name: "spline knots given as values outside the range of the rows used (ordplan fit)", setup: writeTermsData, code: 1,
+			args: fitArgs(cat, "--predictors", "x|spline=4/5/6"),
+			want: []string{`cat.csv: --predictors item 1: column "x": the knots [4, 5, 6] of spline term "x.spline" are not all within the range of the rows used, -0.5 to 3.5: knots 4, 5, 6 lie outside it`}},
 		{id: "T14", name: "a subset that leaves out a declared level", args: []string{"check", "--no-data"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: site, none_of: [south]}\npredictors:"), code: 1,
 			want: []string{`T14.yaml:7:5: subset[0]: leaves out the rows of level "south" of site, which categorical.site declares: no row used has it, so its column cannot be estimated; remove the level from categorical.site.levels (rows outside the subset may keep it) or set categorical.site.unobserved: drop` + "\n"}},

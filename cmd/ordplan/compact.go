@@ -25,7 +25,8 @@ const compactHelp = `Predictor terms, comma separated (quote the whole list for 
   age|centre=mean|scale       centred at the sample mean (or centre=40), divided by the sample SD
   age|polynomial=2            orthogonal polynomial of degree 2 (polynomial=2raw: raw powers)
   age|spline=30/45/60         natural cubic spline, knots at 30, 45, 60 (first and last are
-                              the boundary knots); spline=q0.1/0.5/0.9 puts them at quantiles
+                              the boundary knots; within the data's range); spline=q0.1/0.5/0.9
+                              puts them at quantiles
   treat&age                   interaction of terms listed before it
   ...|as=name                 names the term (columns derive from it)
 Transformations apply in this order: log or sqrt, centre, scale, polynomial or spline. Columns are

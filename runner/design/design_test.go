@@ -272,6 +272,41 @@ func TestBuildErrors(t *testing.T) {
 	}
 }
 
+// Spline knots given as values must lie within the range of the rows used
+// (on the values the knots apply to, after a log or centring); at the
+// range's ends they pass, and quantile knots lie inside by construction.
+func TestSplineKnotsOutsideTheData(t *testing.T) {
+	num := []Source{{Name: "x"}}
+	x := []float64{18, 30, 45, 60, 86}
+	spline := func(tr Transform) error {
+		_, err := Build(Spec{Sources: num, Terms: []TermSpec{{Name: "xs", Source: "x", Key: "predictors[0]", Transform: tr}}}, x, len(x), nil, nil)
+		return err
+	}
+	err := spline(Transform{Knots: []float64{100, 110, 120}})
+	if want := `predictors[0]: column "x": the knots [100, 110, 120] of spline term "xs" are not all within the range of the rows used, 18 to 86: knots 100, 110, 120 lie outside it:`; err == nil || !strings.HasPrefix(err.Error(), want) {
+		t.Errorf("knots above the data: %v, want %s", err, want)
+	}
+	err = spline(Transform{Knots: []float64{10, 40, 70}})
+	if want := `the knots [10, 40, 70] of spline term "xs" are not all within the range of the rows used, 18 to 86: knot 10 lies outside it`; err == nil || !strings.Contains(err.Error(), want) {
+		t.Errorf("a knot below the data: %v, want %s", err, want)
+	}
+	if err := spline(Transform{Knots: []float64{18, 45, 86}}); err != nil {
+		t.Errorf("knots at the data's ends: %v", err)
+	}
+	if err := spline(Transform{Quantiles: []float64{0, 0.5, 1}}); err != nil {
+		t.Errorf("quantile knots: %v", err)
+	}
+	// On the transformed values: log(18) = 2.89037..., log(86) = 4.45434...,
+	// the range printed rounded inwards to 6 digits.
+	err = spline(Transform{Log: true, Knots: []float64{3, 4, 5}})
+	if want := `not all within the range of the rows used, 2.89038 to 4.45434 (on the transformed values, where the knots apply): knot 5 lies outside it`; err == nil || !strings.Contains(err.Error(), want) {
+		t.Errorf("knots on the log scale: %v, want %s", err, want)
+	}
+	if err := spline(Transform{Centre: "value", CentreAt: 45, Knots: []float64{-27, 0, 41}}); err != nil {
+		t.Errorf("knots on the centred values at the ends: %v", err)
+	}
+}
+
 // Quantile knots of the weighted sample equal those of the sample with
 // each row repeated weight times.
 func TestWeightedQuantile(t *testing.T) {

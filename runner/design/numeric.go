@@ -79,9 +79,59 @@ func (d *Design) buildNumeric(t *Term, column string, v, w []float64, lines []in
 				return &Error{Key: t.Key, Column: column, Msg: fmt.Sprintf("the spline knots %s are not strictly increasing on the transformed values (too few distinct values for the quantiles asked)", numList(t.Knots))}
 			}
 		}
+		if tr.Quantiles == nil {
+			if msg := knotsOutside(t.Name, t.Knots, u, tr); msg != "" {
+				return &Error{Key: t.Key, Column: column, Msg: msg}
+			}
+		}
 	}
 	t.Columns = numericNames(t.Name, tr, len(t.Knots))
 	return nil
+}
+
+// knotsOutside refuses spline knots given as values that lie outside the
+// range of the values u of the rows used (the values the knots apply to,
+// after log, sqrt, centring and scaling): beyond the data an interior
+// knot's basis column can be 0 in every row, or the basis linear there,
+// and the curve bends where no row is. It names the knots, the outlying ones
+// and the data's range, or returns "".
+func knotsOutside(name string, knots, u []float64, tr Transform) string {
+	if len(u) == 0 {
+		return ""
+	}
+	lo, hi := slices.Min(u), slices.Max(u)
+	var out []float64
+	for _, k := range knots {
+		if k < lo || k > hi {
+			out = append(out, k)
+		}
+	}
+	if len(out) == 0 {
+		return ""
+	}
+	scale := ""
+	if tr.Log || tr.Sqrt || tr.Centre != "" || tr.Scale {
+		scale = " (on the transformed values, where the knots apply)"
+	}
+	which := "knot " + fmtNum(out[0]) + " lies"
+	if len(out) > 1 {
+		which = "knots " + strings.Trim(numList(out), "[]") + " lie"
+	}
+	// The range in 6 significant digits, rounded inwards so that knots
+	// written as printed lie inside it.
+	round := func(x float64, up bool) string {
+		if x == 0 || math.IsInf(x, 0) || math.IsNaN(x) {
+			return fmtNum(x)
+		}
+		p := math.Pow(10, math.Floor(math.Log10(math.Abs(x)))-5)
+		if up {
+			return fmt.Sprintf("%.6g", math.Ceil(x/p)*p)
+		}
+		return fmt.Sprintf("%.6g", math.Floor(x/p)*p)
+	}
+	from, to := round(lo, true), round(hi, false)
+	return fmt.Sprintf("the knots %s of spline term %q are not all within the range of the rows used, %s to %s%s: %s outside it: a knot beyond the data puts a bend of the curve where no row is, and can leave a basis column 0 in every row or a copy of the straight line; give knots from %s to %s, or knots at quantiles of the data",
+		numList(knots), name, from, to, scale, which, from, to)
 }
 
 func distinct(u []float64) int {
