@@ -90,11 +90,40 @@ func writeNewRows(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			neg++
 		}
 	}
-	d.p("The chosen model's predictions for the %d rows of `%s` (%d rows read, %d skipped for a missing value) are in `%s`: for each row its line in the file and the file's own columns (so a row label travels with its predictions), the category probabilities (`prob_CATEGORY`), the cumulative probabilities P(y <= m) (`cumprob_CATEGORY`), the expected category (`expected`, categories scored 1 to %d), the most likely category and the linear predictors (`linear_m`), each number with its delta-method standard error (`se_...`) and its %s interval (`low_%s_...`, `high_%s_...`). The interval of a linear predictor is the number plus and minus %s standard errors. That of a probability is made on its log-odds scale, logit(p) plus and minus the same multiple of the error se/(p(1 − p)), and transformed back, so that it stays between 0 and 1 and is not symmetric about p near either end (empty for a negative probability); that of the expected category likewise on the log-odds scale of its place between 1 and %d. Rows with a negative predicted probability: %d.",
+	d.p("The chosen model's predictions for the %d rows of `%s` (%d rows read, %d skipped for a missing value) are in `%s`: for each row its line in the file and the file's own columns (so a row label travels with its predictions), the category probabilities (`prob_CATEGORY`), the cumulative probabilities P(y <= m) (`cumprob_CATEGORY`), the expected category (`expected`, categories scored 1 to %d), the most likely category, the linear predictors (`linear_m`) and whether the row lies outside the population the model was fitted to (`outside`, with the reasons in `outside_why`), each number with its delta-method standard error (`se_...`) and its %s interval (`low_%s_...`, `high_%s_...`). The interval of a linear predictor is the number plus and minus %s standard errors. That of a probability is made on its log-odds scale, logit(p) plus and minus the same multiple of the error se/(p(1 − p)), and transformed back, so that it stays between 0 and 1 and is not symmetric about p near either end (empty for a negative probability); that of the expected category likewise on the log-odds scale of its place between 1 and %d. Rows with a negative predicted probability: %d.",
 		nr.Rows.N, nr.File, nr.Rows.RowsRead, len(nr.Rows.Skipped), predictionsFile(or), len(or.Data.Categories), pct(level), lvText(level), lvText(level), times, len(or.Data.Categories), neg)
 	if nr.DF != nil {
 		d.p("On imputed data each number was predicted on each of the %d imputed sets by that set's fit and pooled by Rubin's rules: the prediction is the mean over the sets, its standard error the square root of the mean squared delta-method error plus (1 + 1/%d) times the variance between the sets, and each standard error is followed by its Barnard-Rubin degrees of freedom (`df_...`, empty when the sets agree) ; the intervals use t on them. The most likely category is that of the pooled probabilities; a row is flagged negative when a pooled probability or any set's is.",
 			or.Imputed.M, or.Imputed.M)
+	}
+	writeNewRowsOutside(d, or)
+}
+
+// newRowsListed is how many rows outside the population fitted the report
+// lists; the predictions file flags every one.
+const newRowsListed = 20
+
+// writeNewRowsOutside says which new rows lie outside the population the
+// model was fitted to, and why (runner.NewRows.Flagged).
+func writeNewRowsOutside(d *doc, or *runner.OutcomeResult) {
+	nr := or.NewRows
+	for _, n := range nr.Notes {
+		d.p("%s", mdText(n))
+	}
+	checked := "Each row was checked against the plan's subset conditions, the ranges and values the data dictionary declares, and the range of each numeric column over the rows the model was fitted to. Each column is checked alone: a row within every column's range can still be a combination of values that no row used has."
+	if len(nr.Flagged) == 0 {
+		d.p("Every row lies within the population the model was fitted to. %s", checked)
+		return
+	}
+	d.p("**Outside the population fitted:** %d of the %d rows lie outside the population the model was fitted to. They are predicted all the same, as asked, but a prediction for a row the plan's subset excludes, or beyond the values of the rows used (extrapolation), rests on the model's form alone, and its interval does not show that; read it with care. The columns `outside` and `outside_why` of `%s` flag them. %s",
+		len(nr.Flagged), nr.Rows.N, predictionsFile(or), checked)
+	var rows [][]string
+	for _, f := range nr.Flagged[:min(len(nr.Flagged), newRowsListed)] {
+		rows = append(rows, []string{strconv.Itoa(f.Line), strings.Join(f.Reasons, "; ")})
+	}
+	d.captioned("New rows outside the population fitted").table([]string{"Line", "Why"}, rows)
+	if len(nr.Flagged) > newRowsListed {
+		d.p("The first %d are listed; the predictions file flags all %d.", newRowsListed, len(nr.Flagged))
 	}
 }
 
@@ -145,7 +174,9 @@ func outcomeFile(prefix, col string) string {
 // predictionsCSV writes the predictions for new rows: the row's line in
 // the new-rows file, every column of that file as written (so its
 // identifying columns, such as a row label, travel with the predictions),
-// then the predictions. Every header name is a plain identifier (letters,
+// then the predictions, and last whether the row lies outside the
+// population the model was fitted to (outside) and why (outside_why, the
+// reasons of runner.NewRows.Outside joined by "; ", empty when inside). Every header name is a plain identifier (letters,
 // digits, '_'), usable without quoting.
 func predictionsCSV(r *runner.Result, or *runner.OutcomeResult) []byte {
 	level, z := confidence(r)
@@ -178,7 +209,7 @@ func predictionsCSV(r *runner.Result, or *runner.OutcomeResult) []byte {
 	for m := 1; m <= q; m++ {
 		pair(fmt.Sprintf("linear_%d", m))
 	}
-	head = append(head, "negative")
+	head = append(head, "negative", "outside", "outside_why")
 	ours := map[string]bool{}
 	for _, h := range head {
 		ours[h] = true
@@ -241,7 +272,11 @@ func predictionsCSV(r *runner.Result, or *runner.OutcomeResult) []byte {
 		for m := 0; m < q; m++ {
 			num(pr.Linear[i*q+m], pr.LinearSE[i*q+m], dLin, i*q+m, 0, 0)
 		}
-		fmt.Fprintf(&b, ",%t\n", pr.Negative[i])
+		var why []string
+		if nr.Outside != nil {
+			why = nr.Outside[i]
+		}
+		fmt.Fprintf(&b, ",%t,%t,%s\n", pr.Negative[i], len(why) > 0, csvCell(strings.Join(why, "; ")))
 	}
 	return b.Bytes()
 }

@@ -54,6 +54,12 @@ type NewRows struct {
 	// DF are the degrees of freedom of the pooled predictions on imputed
 	// data (nil otherwise).
 	DF *PredictionDF `json:"-"`
+	// Outside gives, per row, why it lies outside the population the model
+	// was fitted to (nil: inside; flagNewRows); Flagged the rows with a
+	// reason, by line; Notes what could not be checked.
+	Outside [][]string      `json:"-"`
+	Flagged []NewRowOutside `json:"-"`
+	Notes   []string        `json:"-"`
 }
 
 // runInference computes what the plan's inference section asks for.
@@ -111,7 +117,8 @@ func marginalSet(an *Analysis, or *OutcomeResult, res *fit.Result, kind string) 
 }
 
 // readNewRows reads the plan's new rows and makes their design with the
-// constants frozen from the fitted data.
+// constants frozen from the fitted data; with the fitted data (not in
+// check) it flags the rows outside the population fitted (flagNewRows).
 func readNewRows(an *Analysis, or *OutcomeResult) (*NewRows, error) {
 	inf, dopt := an.Inference, or.dataOptions
 	nr := &NewRows{File: inf.Predict}
@@ -123,7 +130,7 @@ func readNewRows(an *Analysis, or *OutcomeResult) (*NewRows, error) {
 			levels[s.Name] = s.Cat.Levels
 		}
 	}
-	rows, err := data.LoadRowsMissing(inf.PredictPath, sources, levels, dopt.Offset, dopt.MissingTokens, dopt.ColumnMissing, dopt.Dialect)
+	rows, err := data.LoadNewRows(inf.PredictPath, sources, levels, dopt)
 	if err != nil {
 		return nil, fmt.Errorf("%s: inference.predict: %v", an.Source, err)
 	}
@@ -133,6 +140,9 @@ func readNewRows(an *Analysis, or *OutcomeResult) (*NewRows, error) {
 		return nil, fmt.Errorf("%s: inference.predict: %s:%d: %v", an.Source, rows.File, rows.Lines[i], err)
 	}
 	nr.Design = X
+	if or.Data != nil {
+		flagNewRows(an, or, nr)
+	}
 	return nr, nil
 }
 

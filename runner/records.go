@@ -85,6 +85,10 @@ type OutcomeDecisions struct {
 	// LevelPairs: comparisons between every pair of levels of the
 	// categorical predictors of inference.level_pairs.
 	LevelPairs []LevelPairSet `json:"level_pairs,omitempty"`
+	// NewRowsOutside: the new rows to predict that lie outside the
+	// population the chosen model was fitted to, with the reasons (the
+	// predictions file's outside_why); absent when none.
+	NewRowsOutside []NewRowOutside `json:"new_rows_outside,omitempty"`
 	// Terms: how each predictor term became design columns, with every
 	// constant frozen from the data (omitted when every term is a numeric
 	// column as it is).
@@ -253,6 +257,9 @@ func BuildDecisions(r *Result) *Decisions {
 		od.TermTests = or.TermTests
 		od.Marginal = or.Marginal
 		od.LevelPairs = or.LevelPairs
+		if or.NewRows != nil {
+			od.NewRowsOutside = or.NewRows.Flagged
+		}
 		d.Outcomes = append(d.Outcomes, od)
 	}
 	return d

@@ -32,9 +32,10 @@ type Analysis struct {
 	// (data.missing: impute; nil otherwise).
 	Imputed    *plan.Imputed
 	Imputation *plan.Imputation
-	// Declared are, when the program imputes (Imputation), the numeric
-	// columns' range or values the data dictionary declares, which the
-	// imputed values are counted against.
+	// Declared are the numeric columns' range or values the data
+	// dictionary declares: when the program imputes (Imputation), the
+	// imputed values are counted against them; new rows to predict outside
+	// them are flagged (flagNewRows).
 	Declared map[string]*chained.Bounds
 	Outcomes []Reading
 	// Fit are the options of every fit: model-based errors (observed or
@@ -175,9 +176,9 @@ func ResolvePlan(p *plan.Plan) *Analysis {
 		a.DataPaths, a.DataFiles = p.Data.PartPaths, p.Data.PartFiles
 	}
 	a.Imputed = p.Data.Imputed
+	a.Declared = declaredBounds(p.Dictionary)
 	if p.Data.Imputes() {
 		a.Imputation = p.Data.Imputation
-		a.Declared = declaredBounds(p.Dictionary)
 	}
 	a.Fit = a.Errors.fitOptions(1) // the grid runs its fits in parallel
 	a.Fit.KeepStarts = p.Models.RunEveryStart

@@ -249,6 +249,43 @@ func termItems(dir string) []badInput {
 		{id: "T24", name: "spline knots given as values outside the range of the rows used (ordplan fit)", setup: writeTermsData, code: 1,
 			args: fitArgs(cat, "--predictors", "x|spline=4/5/6"),
 			want: []string{`cat.csv: --predictors item 1: column "x": the knots [4, 5, 6] of spline term "x.spline" are not all within the range of the rows used, -0.5 to 3.5: knots 4, 5, 6 lie outside it`}},
+		{id: "T25", name: "new rows to predict outside the population fitted: failing a subset condition, outside the dictionary's range, beyond the data (predicted, flagged)", args: []string{"run"},
+			setup: func(t *testing.T, dir, _ string) {
+				writeTermsData(t, dir, "")
+				os.WriteFile(filepath.Join(dir, "far.csv"), []byte("id,site,x\nin,north,1\nbelow,east,-0.8\nfar,south,20\n"), 0o644)
+			},
+			plan: termsEdit("predictors:", "subset:\n  - {column: x, at_least: 0}\ndictionary:\n  site: {label: Site}\n  x: {range: [-1, 10]}\npredictors:", "rules:", "inference: {predict: far.csv}\nrules:"), code: 0,
+			want: []string{"y: chosen: cumulative/parallel/logit"},
+			check: func(t *testing.T, dir, out, errs string) {
+				b, err := os.ReadFile(filepath.Join(dir, "T25-out", "predictions-y.csv"))
+				if err != nil {
+					t.Fatal(err)
+				}
+				lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+				if len(lines) != 4 || !strings.HasSuffix(lines[0], ",negative,outside,outside_why") {
+					t.Fatalf("predictions-y.csv: want a header ending in outside,outside_why and 3 rows, got\n%s", b)
+				}
+				for i, want := range []string{
+					",false,",
+					`,true,"subset[0]: fails the plan's subset condition x >= 0 (x is -0.8); extrapolation: x -0.8 is beyond the range of the rows the model was fitted to, 0.507 to 3.5"`,
+					`,true,"dictionary.x: x 20 is outside the declared range [-1, 10]; extrapolation: x 20 is beyond the range of the rows the model was fitted to, 0.507 to 3.5"`,
+				} {
+					if !strings.Contains(lines[i+1], want) {
+						t.Errorf("predictions-y.csv row %d: want %q in\n%s", i+1, want, lines[i+1])
+					}
+				}
+				if !strings.HasSuffix(lines[1], ",false,false,") {
+					t.Errorf("the row inside is flagged: %s", lines[1])
+				}
+				rep, err := os.ReadFile(filepath.Join(dir, "T25-out", "report.md"))
+				if want := "**Outside the population fitted:** 2 of the 3 rows lie outside the population the model was fitted to. They are predicted all the same"; err != nil || !strings.Contains(string(rep), want) {
+					t.Errorf("report.md does not flag the rows outside (%v); want %q", err, want)
+				}
+				dec, err := os.ReadFile(filepath.Join(dir, "T25-out", "decisions.json"))
+				if want := `"new_rows_outside": [`; err != nil || !strings.Contains(string(dec), want) || !strings.Contains(string(dec), `"line": 4,`) {
+					t.Errorf("decisions.json does not list the rows outside (%v)", err)
+				}
+			}},
 		{id: "T14", name: "a subset that leaves out a declared level", args: []string{"check", "--no-data"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: site, none_of: [south]}\npredictors:"), code: 1,
 			want: []string{`T14.yaml:7:5: subset[0]: leaves out the rows of level "south" of site, which categorical.site declares: no row used has it, so its column cannot be estimated; remove the level from categorical.site.levels (rows outside the subset may keep it) or set categorical.site.unobserved: drop` + "\n"}},

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -132,5 +133,33 @@ func TestValidateInChunks(t *testing.T) {
 	hr, nr := cut(byRecord)
 	if hc != hr || nr != nc+2 {
 		t.Errorf("record by record:\n%s\nwant the chunked read's first problems\n%s\nand %d problems in all", byRecord, chunked, nc+2)
+	}
+}
+
+// New rows are checked against the subset conditions, as the data's
+// reader decides, but kept: Fails lists the conditions each row fails,
+// Undecided those its missing cell cannot be checked against, Unchecked
+// the conditions whose column the file lacks.
+func TestNewRowsSubsetConditions(t *testing.T) {
+	nr := writeTemp(t, "new.csv", "a;site;w\n16;north;1\n30,5;west;\n45;north;2\n")
+	keep := []Condition{
+		{Column: "a", Op: ">=", Number: 18, Key: "subset[0]"},
+		{Column: "site", Op: "in", Values: []string{"north", "east"}, Key: "subset[1]"},
+		{Column: "w", Op: "<=", Number: 1, Key: "subset[2]"},
+		{Column: "clinic", Op: "==", Number: 1, Key: "subset[3]"},
+	}
+	rows, err := LoadNewRows(nr, []string{"a"}, nil, Options{Keep: keep, MissingTokens: []string{""}, Dialect: Dialect{Delimiter: ';', DecimalComma: true}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	wantFails := [][]int{{0}, {1}, {2}}
+	wantUndecided := [][]int{nil, {2}, nil}
+	for i := range wantFails {
+		if !slices.Equal(rows.Fails[i], wantFails[i]) || !slices.Equal(rows.Undecided[i], wantUndecided[i]) {
+			t.Errorf("row %d: fails %v undecided %v, want %v %v", i, rows.Fails[i], rows.Undecided[i], wantFails[i], wantUndecided[i])
+		}
+	}
+	if !slices.Equal(rows.Unchecked, []int{3}) || rows.N != 3 || rows.X[1] != 30.5 {
+		t.Errorf("unchecked %v, rows %d, x %v", rows.Unchecked, rows.N, rows.X)
 	}
 }

@@ -22,6 +22,14 @@ type Rows struct {
 	RowsRead int
 	Skipped  []int  // lines skipped for a missing value
 	SHA256   string // hex SHA-256 of the file's bytes
+	// Fails lists, per kept row, the subset conditions (Options.Keep, by
+	// index) the row fails, as the data's reader decides; Undecided those
+	// it cannot be checked against (its cell there is missing); Unchecked
+	// the conditions whose column the file lacks, which no row is checked
+	// against. A row failing a condition is kept: it is predicted and
+	// flagged (the caller says so), not refused.
+	Fails, Undecided [][]int
+	Unchecked        []int
 }
 
 // LoadRows reads a file of rows to predict: a header naming at least
@@ -46,12 +54,21 @@ func LoadRowsLevels(path string, predictors []string, levels map[string][]string
 // same header and records path as data files, so it may be CSV text, an
 // .xlsx workbook or a Parquet file.
 func LoadRowsMissing(path string, predictors []string, levels map[string][]string, offset string, missingTokens []string, columnMissing map[string][]string, dialect Dialect) (*Rows, error) {
+	return LoadNewRows(path, predictors, levels, Options{Offset: offset, MissingTokens: missingTokens, ColumnMissing: columnMissing, Dialect: dialect})
+}
+
+// LoadNewRows is LoadRowsMissing with the data's reading options in opt
+// (Offset, MissingTokens, ColumnMissing, Dialect; the other fields are not
+// read) and the subset conditions opt.Keep, which each row is checked
+// against (Rows.Fails) but not dropped for.
+func LoadNewRows(path string, predictors []string, levels map[string][]string, opt Options) (*Rows, error) {
+	offset, dialect := opt.Offset, opt.Dialect
 	raw, err := ReadFile(path)
 	if err != nil {
 		return nil, err
 	}
 	hash := HashBytes(raw)
-	r := &reader{file: path, opt: Options{MissingTokens: missingTokens, ColumnMissing: columnMissing, Dialect: dialect}}
+	r := &reader{file: path, opt: Options{MissingTokens: opt.MissingTokens, ColumnMissing: opt.ColumnMissing, Dialect: dialect}}
 	r.missing = r.opt.missingSet()
 	if err := r.start(bytes.NewReader(raw)); err != nil {
 		return nil, err
@@ -75,9 +92,19 @@ func LoadRowsMissing(path string, predictors []string, levels map[string][]strin
 			r.readNumbers(c)
 		}
 	}
+	keep := make([]int, len(opt.Keep)) // the column of each condition, -1: absent
+	var unchecked []int
+	for k, c := range opt.Keep {
+		i, ok := index[c.Column]
+		if !ok {
+			i = -1
+			unchecked = append(unchecked, k)
+		}
+		keep[k] = i
+	}
 	cr := r.cr
 	K := len(predictors)
-	rs := &Rows{File: path, Predictors: predictors, SHA256: hash, Header: head}
+	rs := &Rows{File: path, Predictors: predictors, SHA256: hash, Header: head, Unchecked: unchecked}
 	for {
 		rec, err := cr.Read()
 		if err == io.EOF {
@@ -138,6 +165,20 @@ func LoadRowsMissing(path string, predictors []string, levels map[string][]strin
 			}
 		}
 		rs.Cells = append(rs.Cells, cells)
+		var fails, undecided []int
+		for k, c := range opt.Keep {
+			if keep[k] < 0 {
+				continue
+			}
+			cell := cells[keep[k]]
+			if r.missingIn(c.Column, cell) {
+				undecided = append(undecided, k)
+			} else if ok, _ := c.keeps(cell, dialect); !ok {
+				fails = append(fails, k)
+			}
+		}
+		rs.Fails = append(rs.Fails, fails)
+		rs.Undecided = append(rs.Undecided, undecided)
 		rs.N++
 	}
 	if rs.RowsRead == 0 {
