@@ -6,6 +6,7 @@ import (
 	"encoding/hex"
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -13,6 +14,13 @@ import (
 	"ordplan/runner"
 	"ordplan/runner/fit"
 )
+
+// holdsAtSentence says what the column Holds at of the hypotheses' tables
+// (the report's, power.md's) means, with one of the plan's hypotheses
+// (text) and where it holds as the example.
+func holdsAtSentence(text, where string) string {
+	return fmt.Sprintf("A restriction on a term that enters an interaction in the model tests that term's effect where the terms it interacts with have their columns at 0, as its odds ratios do (column Holds at): %s is tested at %s only, not at every value of the terms it interacts with; a test at every value also restricts the interaction's columns.", mdCode(text), where)
+}
 
 // writeHypotheses writes the Wald tests of the plan's hypotheses.
 func writeHypotheses(d *doc, r *runner.Result, or *runner.OutcomeResult) {
@@ -32,10 +40,18 @@ func writeHypotheses(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	if pooled {
 		d.p("On imputed data an estimate is pooled by Rubin's rules, its interval from t on the Barnard-Rubin degrees of freedom.")
 	}
+	at := slices.IndexFunc(or.Hypotheses, func(h runner.HypothesisResult) bool { return h.HoldsAt != "" })
+	where := at >= 0
+	if where {
+		d.p("%s", holdsAtSentence(or.Hypotheses[at].Text, or.Hypotheses[at].HoldsAt))
+	}
 	head := []string{"Hypothesis", "Plan line", "Model", "Estimate", "Std. error", pct(level) + " low", pct(level) + " high", "Chi-square", "df", "p"}
 	if adjusted != "" {
 		head = append(head, "p, "+adjusted)
 		d.p("The p-values in the chosen model are also given adjusted for multiplicity (%s) over every hypothesis of every outcome, each in its chosen model; the run notes give the size of the family.", adjusted)
+	}
+	if where {
+		head = append(head[:2], append([]string{"Holds at"}, head[2:]...)...)
 	}
 	var rows [][]string
 	for _, h := range or.Hypotheses {
@@ -47,6 +63,9 @@ func writeHypotheses(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		if len(h.Contrasts) == 1 && h.Test.OK {
 			c := h.Contrasts[0]
 			row[3], row[4], row[5], row[6] = numfmt.Est(c.Estimate), numfmt.Est(c.SE), numfmt.Est(c.Low), numfmt.Est(c.High)
+		}
+		if where {
+			row = append(row[:2], append([]string{md(h.HoldsAt)}, row[2:]...)...)
 		}
 		if !h.Test.OK {
 			row = append(row, "", "", "not computed: "+h.Test.Reason)

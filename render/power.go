@@ -2,6 +2,7 @@ package render
 
 import (
 	"fmt"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -97,11 +98,22 @@ func writePowerHypotheses(d *doc, op simulate.OutcomePower) {
 		return
 	}
 	d.h(3, "Power of the plan's hypotheses")
+	at := slices.IndexFunc(op.Sizes[0].Hypotheses, func(h simulate.HypothesisPower) bool { return h.HoldsAt != "" })
+	where := at >= 0
+	if where {
+		d.p("%s", holdsAtSentence(op.Sizes[0].Hypotheses[at].Hypothesis, op.Sizes[0].Hypotheses[at].HoldsAt))
+	}
 	head := sizeHead("Hypothesis (plan line)", op.Sizes)
+	if where {
+		head = slices.Insert(head, 1, "Holds at")
+	}
 	head = append(head, "not testable")
 	var rows [][]string
 	for hi, h := range op.Sizes[0].Hypotheses {
 		row := []string{md(fmt.Sprintf("%s (%d)", mdCode(h.Hypothesis), h.Line))}
+		if where {
+			row = append(row, md(h.HoldsAt))
+		}
 		var un []string
 		for _, s := range op.Sizes {
 			row = append(row, fmtRate(s.Hypotheses[hi].Power))

@@ -130,3 +130,23 @@ func TestSimulatedWeightsWords(t *testing.T) {
 		}
 	}
 }
+
+// power.md says where a hypothesis on a term that enters an interaction
+// holds, in the words of the run's report (holdsAtSentence).
+func TestPowerReportSaysWhereHypothesesHold(t *testing.T) {
+	hs := []simulate.HypothesisPower{{Hypothesis: "dose = 0", Line: 9, HoldsAt: "female = 0", Power: simulate.Rate{Count: 5, Of: 10, Rate: 0.5}},
+		{Hypothesis: "dose&female = 0", Line: 10, Power: simulate.Rate{Of: 10}}}
+	pr := &simulate.PowerResult{Simulated: true, PlanFile: "p.yaml", PlanSHA256: "abc", Seed: 1, Generator: "cumulative logit",
+		Replicates: 10, Alpha: 0.05, Sizes: []int{100}, Version: "0.1.0",
+		Outcomes: []simulate.OutcomePower{{Outcome: "y", Sizes: []simulate.SizeResult{{N: 100, Hypotheses: hs}}}}}
+	files, err := PowerOutputs(pr, &lock.Status{State: lock.StateNone, LockFile: "p.lock.json"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	md := string(files["power.md"])
+	for _, w := range []string{holdsAtSentence("dose = 0", "female = 0"), "| Hypothesis (plan line) | Holds at | n = 100 | not testable |", "| `dose = 0` (9) | female = 0 | 0.500 (0.000) | 0 |", "| `dose&female = 0` (10) |  | 0.000 (0.000) | 0 |"} {
+		if !strings.Contains(md, w) {
+			t.Errorf("power.md lacks %q:\n%s", w, md)
+		}
+	}
+}

@@ -8,6 +8,7 @@ import (
 
 	"ordplan/plan"
 	"ordplan/runner/data"
+	"ordplan/runner/design"
 	"ordplan/runner/fit"
 )
 
@@ -25,6 +26,11 @@ type HypothesisResult struct {
 	// Contrasts estimates each restriction (left side minus right side)
 	// with its interval at the report's level.
 	Contrasts []fit.Contrast `json:"contrasts,omitempty"`
+	// HoldsAt says where the restriction holds when it names a term that
+	// enters an interaction in the model: the other terms' columns at 0,
+	// as the odds ratios say it ("female = 0"; with several such terms,
+	// "dose: female = 0; female: dose = placebo"); empty otherwise.
+	HoldsAt string `json:"holds_at,omitempty"`
 }
 
 // MarginalSet is one kind of marginal effects of the chosen model.
@@ -311,6 +317,12 @@ func hypothesisTests(h plan.Hypothesis, or *OutcomeResult, level float64) []Hypo
 		}
 		out = append(out, HypothesisResult{Text: h.Text, Line: h.Line, Model: f.ID, Test: fit.WaldLinear(f.Result, hy), Contrasts: fit.Contrasts(f.Result, hy, level)})
 	}
+	if len(out) > 0 {
+		where := hypothesisHoldsAt(h.Text, or)
+		for i := range out {
+			out[i].HoldsAt = where
+		}
+	}
 	if len(out) == 0 {
 		reason := "no fitted model has the parameters it names"
 		if lastErr != nil {
@@ -350,4 +362,45 @@ func expandTermHypothesis(text string, terms []fit.Term, params []string) string
 		}
 	}
 	return strings.Join(parts, ";")
+}
+
+// hypothesisHoldsAt says where a hypothesis's restrictions hold: for each
+// term it names (by a column, a column's boundary, or as TERM = 0) that
+// enters an interaction with other terms, holdsAt's words; the terms'
+// columns are the same in every model of the outcome.
+func hypothesisHoldsAt(text string, or *OutcomeResult) string {
+	dz := or.Design
+	if dz == nil {
+		return ""
+	}
+	var terms []int
+	add := func(k int) {
+		if k >= 0 && !slices.Contains(terms, k) {
+			terms = append(terms, k)
+		}
+	}
+	for _, part := range strings.Split(text, ";") {
+		if name, ok := fit.WholeTermPart(part); ok {
+			if k := slices.IndexFunc(dz.Terms, func(t design.Term) bool { return t.Name == name }); k >= 0 {
+				add(k)
+				continue
+			}
+		}
+		names, _ := fit.HypothesisNames(part)
+		for _, n := range names {
+			col, _, _ := strings.Cut(n, "[")
+			add(slices.IndexFunc(dz.Terms, func(t design.Term) bool { return slices.Contains(t.Columns, col) }))
+		}
+	}
+	var at []string
+	for _, k := range terms {
+		if w := holdsAt(dz, k); w != "" {
+			at = append(at, dz.Terms[k].Name+": "+w)
+		}
+	}
+	if len(at) == 1 {
+		_, w, _ := strings.Cut(at[0], ": ")
+		return w
+	}
+	return strings.Join(at, "; ")
 }

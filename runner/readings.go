@@ -64,17 +64,25 @@ func columnReadings(dz *design.Design, raw *data.Dataset, fd *fit.Data) []Column
 	}
 	var out []ColumnReading
 	for k := range dz.Terms {
-		where := interactionPartners(dz, k)
-		var at []string
-		for _, p := range where {
-			at = append(at, zeroText(dz, p))
-		}
+		where := holdsAt(dz, k)
 		for _, r := range per[k] {
-			r.Where = strings.Join(at, ", ")
+			r.Where = where
 			out = append(out, r)
 		}
 	}
 	return out
+}
+
+// holdsAt says where the effect of term k of dz holds when the term
+// enters an interaction with other terms: those terms' columns at 0
+// ("female = 0", "street_type = residential, x = 0"); "" otherwise. The
+// odds ratios and the plan's hypotheses say it in these words.
+func holdsAt(dz *design.Design, k int) string {
+	var at []string
+	for _, p := range interactionPartners(dz, k) {
+		at = append(at, zeroText(dz, p))
+	}
+	return strings.Join(at, ", ")
 }
 
 // termReadings reads the columns of term k of dz (the terms before it

@@ -108,3 +108,55 @@ rules:
 		})
 	}
 }
+
+// A hypothesis restricting a term that enters an interaction says where
+// it holds in the odds ratios' own words (one function, holdsAt): "treat =
+// 0" with treat&dose in the model tests treat at dose's centre only.
+func TestHypothesisHoldsWhereTheOddsRatioDoes(t *testing.T) {
+	const src = `version: 1
+title: holds at
+data: {file: trial.csv}
+outcomes: [{column: relief, categories: [none, slight, moderate, complete]}]
+categorical:
+  treat: {levels: [placebo, drug]}
+  site: {levels: [north, east, south, west]}
+predictors:
+  - treat
+  - site
+  - {name: dose, column: dose, log: {shift: 1}, centre: mean}
+  - {interact: [treat, dose]}
+models: {approaches: [cumulative], effects: [parallel, nonparallel]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: aic}
+inference:
+  hypotheses: ["treat = 0", "treat.drug[2] = treat.drug[1]", "treat&dose = 0", "site = 0", "dose = 0; treat = 0", "site.east = 0"]
+`
+	or := runPlan(t, writePlan(t, src, map[string]string{"trial.csv": inventedTrial(300)}), 0).Outcomes[0]
+	where := map[string]string{}
+	for _, r := range or.ColumnReadings() {
+		where[r.Column] = r.Where
+	}
+	want := map[string]string{
+		"treat = 0":                     where["treat.drug"],
+		"treat.drug[2] = treat.drug[1]": where["treat.drug"],
+		"treat&dose = 0":                "",
+		"site = 0":                      "",
+		"site.east = 0":                 "",
+		"dose = 0; treat = 0":           "dose: " + where["dose"] + "; treat: " + where["treat.drug"],
+	}
+	if !strings.HasPrefix(where["treat.drug"], "dose = ") || where["dose"] != "treat = placebo" {
+		t.Fatalf("readings: %v", where)
+	}
+	seen := map[string]bool{}
+	for _, h := range or.Hypotheses {
+		w, ok := want[h.Text]
+		if !ok || h.HoldsAt != w {
+			t.Errorf("%s in %s: holds at %q, want %q", h.Text, h.Model, h.HoldsAt, w)
+		}
+		seen[h.Text] = true
+	}
+	if len(seen) != len(want) {
+		t.Errorf("tested: %v", seen)
+	}
+}

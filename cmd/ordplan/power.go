@@ -124,7 +124,11 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		for _, s := range op.Sizes {
 			var parts []string
 			for _, h := range s.Hypotheses {
-				parts = append(parts, fmt.Sprintf("%s: power %.3f (MC se %.3f)", h.Hypothesis, h.Power.Rate, h.Power.SE))
+				at := ""
+				if h.HoldsAt != "" {
+					at = " (at " + h.HoldsAt + ")"
+				}
+				parts = append(parts, fmt.Sprintf("%s%s: power %.3f (MC se %.3f)", h.Hypothesis, at, h.Power.Rate, h.Power.SE))
 			}
 			parts = append(parts, mostOftenChosen(s.Chosen))
 			fmt.Fprintf(stdout, "%s n=%d: %s\n", op.Outcome, s.N, strings.Join(parts, "; "))

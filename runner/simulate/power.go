@@ -60,6 +60,10 @@ type HypothesisPower struct {
 	// Untested counts replicates where the chosen model lacked the
 	// hypothesis's parameters or no model was chosen.
 	Untested int `json:"untested"`
+	// HoldsAt says where the hypothesis holds when it names a term that
+	// enters an interaction (the run's runner.HypothesisResult.HoldsAt,
+	// the same in every replicate: the terms are the plan's).
+	HoldsAt string `json:"holds_at,omitempty"`
 }
 
 // NoneShare is how often one cause left a replicate without a chosen
@@ -162,8 +166,9 @@ type replicate struct {
 
 type repOutcome struct {
 	chosen       string
-	emptied      string // with no model chosen: why (noneCause)
-	rejected     []int  // per hypothesis: 1 rejected, 0 not, -1 untested
+	emptied      string   // with no model chosen: why (noneCause)
+	rejected     []int    // per hypothesis: 1 rejected, 0 not, -1 untested
+	holdsAt      []string // per hypothesis: where it holds (runner.HypothesisResult.HoldsAt)
 	separation   bool
 	notConverged bool
 }
@@ -279,7 +284,7 @@ func runReplicate(p *plan.Plan, sim *Sim, n, r int, path string, opt PowerOption
 	}
 	out := replicate{kept: written.Kept}
 	for _, or := range res.Outcomes {
-		ro := repOutcome{rejected: make([]int, len(p.Inference.Hypotheses))}
+		ro := repOutcome{rejected: make([]int, len(p.Inference.Hypotheses)), holdsAt: make([]string, len(p.Inference.Hypotheses))}
 		if or.Chosen != nil {
 			ro.chosen = or.Chosen.ID
 		} else {
@@ -299,6 +304,9 @@ func runReplicate(p *plan.Plan, sim *Sim, n, r int, path string, opt PowerOption
 		for hi, h := range p.Inference.Hypotheses {
 			ro.rejected[hi] = -1
 			for _, hr := range or.Hypotheses {
+				if hr.Line == h.Line && hr.Text == h.Text && hr.HoldsAt != "" {
+					ro.holdsAt[hi] = hr.HoldsAt
+				}
 				if hr.Line == h.Line && hr.Text == h.Text && ro.chosen != "" && hr.Model == ro.chosen && hr.Test.OK {
 					ro.rejected[hi] = 0
 					// The run's decision: the adjusted p-value when the
@@ -326,6 +334,7 @@ func summarize(p *plan.Plan, n int, reps []replicate, oi int) SizeResult {
 	sep, nc, failed := 0, 0, 0
 	rej := make([]int, len(p.Inference.Hypotheses))
 	untested := make([]int, len(p.Inference.Hypotheses))
+	holdsAt := make([]string, len(p.Inference.Hypotheses))
 	for _, rp := range reps {
 		if rp.err != "" {
 			failed++
@@ -352,6 +361,11 @@ func summarize(p *plan.Plan, n int, reps []replicate, oi int) SizeResult {
 		if ro.notConverged {
 			nc++
 		}
+		for hi, w := range ro.holdsAt {
+			if holdsAt[hi] == "" {
+				holdsAt[hi] = w
+			}
+		}
 		for hi, v := range ro.rejected {
 			switch v {
 			case 1:
@@ -362,7 +376,7 @@ func summarize(p *plan.Plan, n int, reps []replicate, oi int) SizeResult {
 		}
 	}
 	for hi, h := range p.Inference.Hypotheses {
-		sr.Hypotheses = append(sr.Hypotheses, HypothesisPower{Hypothesis: h.Text, Line: h.Line, Power: rate(rej[hi], R), Untested: untested[hi]})
+		sr.Hypotheses = append(sr.Hypotheses, HypothesisPower{Hypothesis: h.Text, Line: h.Line, Power: rate(rej[hi], R), Untested: untested[hi], HoldsAt: holdsAt[hi]})
 	}
 	for _, m := range byCount(counts) {
 		sr.Chosen = append(sr.Chosen, ModelShare{Model: m, Share: rate(counts[m], R)})
