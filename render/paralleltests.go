@@ -2,6 +2,7 @@ package render
 
 import (
 	"fmt"
+	"strings"
 
 	"ordplan/render/numfmt"
 	"ordplan/runner"
@@ -21,7 +22,10 @@ func writeTests(d *doc, or *runner.OutcomeResult) {
 		d.p("%s The tests the plan asks for were not computed for this outcome.", oneBoundary)
 		return
 	}
-	d.p("Each test compares the model with one slope per predictor against the model with a slope per category boundary. Small p-values speak against parallel lines; in large samples they reject even differences too small to matter.")
+	d.p("The tests ask whether a slope is the same at every category boundary (parallel lines), but not all compare the same two models. Small p-values speak against parallel lines; in large samples they reject even differences too small to matter.")
+	for _, s := range testsMeaning(or) {
+		d.p("%s", s)
+	}
 	for _, tb := range or.Tests {
 		d.h(4, tb.Approach.String()+", "+tb.Link.String())
 		var rows [][]string
@@ -74,4 +78,74 @@ func testLabel(n string) string {
 		return "Wolfe-Gould"
 	}
 	return n
+}
+
+// testsMeaning says, for each kind of test shown for the outcome, which
+// two models it compares: overall (all predictors), per term, and the
+// nested likelihood-ratio tests.
+func testsMeaning(or *runner.OutcomeResult) []string {
+	global, per, nested := map[string]bool{}, map[string]bool{}, false
+	for _, tb := range or.Tests {
+		for _, t := range tb.Global {
+			global[t.Name] = true
+		}
+		for _, vt := range tb.PerVariable {
+			for _, t := range vt.Tests {
+				per[t.Name] = true
+			}
+		}
+		nested = nested || len(tb.Nested) > 0
+	}
+	var out []string
+	overall := map[string]string{
+		"lr":          "the likelihood-ratio test compares the parallel model (one slope per column) with the nonparallel model (a slope per column and boundary)",
+		"wald":        "the Wald test fits only the nonparallel model and asks whether every column's slopes are equal across the boundaries",
+		"score":       "the score test fits only the parallel model and asks whether giving every column a slope per boundary would improve it",
+		"brant":       "the Brant test compares each column's slopes between separate binary logit fits, one per boundary",
+		"wolfe_gould": "the Wolfe-Gould test compares binary logit fits of the boundaries with common slopes against separate ones, one per boundary",
+	}
+	term := map[string]string{
+		"lr":    "the likelihood-ratio test of a term compares the model in which that term alone is parallel (every other term with a slope per boundary) with the nonparallel model",
+		"wald":  "the Wald test of a term asks, in the nonparallel model (every other term free too), whether that term's slopes are equal across the boundaries",
+		"score": "the score test of a term asks, in the parallel model (every other term parallel too), whether giving that term alone a slope per boundary would improve it",
+		"brant": "the Brant test of a term compares that term's slopes between the separate binary fits",
+	}
+	order := []string{"lr", "wald", "score", "brant", "wolfe_gould"}
+	var g, t []string
+	for _, k := range order {
+		if global[k] {
+			g = append(g, overall[k])
+		}
+		if per[k] && term[k] != "" {
+			t = append(t, term[k])
+		}
+	}
+	if len(g) > 0 {
+		out = append(out, "Overall (all predictors): "+strings.Join(g, "; ")+".")
+	}
+	if len(t) > 0 {
+		out = append(out, "For one term (the rows named by a term): "+strings.Join(t, "; ")+".")
+	}
+	if nested {
+		out = append(out, nestedMeaning(or))
+	}
+	return out
+}
+
+// nestedMeaning says what the nested likelihood-ratio tests compare, with
+// the outcome's own parallel-within-partial test as the example when there
+// is one, and why it can disagree with a term's likelihood-ratio test.
+func nestedMeaning(or *runner.OutcomeResult) string {
+	const head = "A nested likelihood-ratio test \"R within F\" compares two candidate models, R a special case of F."
+	for _, tb := range or.Tests {
+		for _, nt := range tb.Nested {
+			r, f := or.Find(nt.Restricted), or.Find(nt.Full)
+			if r == nil || f == nil || r.Effects != fit.ParallelEffects || f.Effects != fit.PartialEffects {
+				continue
+			}
+			free := strings.Join(f.Spec.Nonparallel, ", ")
+			return fmt.Sprintf("%s %s within %s compares the parallel model with the partial model, which gives the columns of its partial set (%s) a slope per boundary and keeps every other term parallel: it asks about those slopes with every other term parallel in both models. A term's likelihood-ratio test in the table above asks about that term's slopes with every other term free in both models (the nonparallel model against the model in which that term alone is parallel). The two answer different questions and can disagree, one p-value small and the other large, when other terms' slopes differ across boundaries or their columns are correlated with that term's (an interaction with it, for one).", head, nt.Restricted, nt.Full, free)
+		}
+	}
+	return head + " Each asks whether the slopes F frees and R does not are equal across the boundaries, with the other terms as both models have them; a term's likelihood-ratio test in the table above has every other term free in both models, so the two can disagree."
 }
