@@ -330,3 +330,39 @@ func TestInitLeavesOutRowNumbers(t *testing.T) {
 		t.Fatalf("not a valid plan: %v\n%s", err, text)
 	}
 }
+
+// A numeric column whose other values are all 0 or more and that holds a
+// conventional missing-value code (-9, -99, ...) gets that code as its own
+// missing value in the dictionary, and its range from its other values;
+// the plan reads the code as missing. A column whose values run below 0
+// anyway keeps its whole range and no code.
+func TestInitOffersMissingCodes(t *testing.T) {
+	dir := t.TempDir()
+	d := filepath.Join(dir, "d.csv")
+	os.WriteFile(d, []byte("grade,months,temp\n1,12,-9\n2,-9,3.5\n3,40,-12\n1,7,0.5\n2,-99,2\n3,22,-4\n1,3,1\n2,16,6\n3,5,2.5\n1,9,-1\n2,31,4\n3,18,0\n1,27,-3\n2,11,5\n3,35,1.5\n1,14,-2\n"), 0o644)
+	p := filepath.Join(dir, "p.yaml")
+	if _, errs, code := runCLI("init", p, "--data", d); code != 0 {
+		t.Fatalf("init: %s", errs)
+	}
+	text, _ := os.ReadFile(p)
+	for _, want := range []string{
+		`months: {range: [3, 40], missing: ["-99", "-9"], label: null, unit: null}   # EDIT: the possible range (observed 3 to 40, and -99 and -9, which look like missing-value codes below values that are all 0 or more: check)`,
+		`temp:   {range: [-12, 6], label: null, unit: null}`,
+	} {
+		if !strings.Contains(string(text), want) {
+			t.Errorf("the plan lacks %q:\n%s", want, text)
+		}
+	}
+	pl, err := plan.Load(p)
+	if err != nil {
+		t.Fatalf("not a valid plan: %v\n%s", err, text)
+	}
+	i := slices.IndexFunc(pl.Dictionary, func(e plan.Entry) bool { return e.Column == "months" })
+	if i < 0 || !slices.Equal(pl.Dictionary[i].Missing, []string{"-99", "-9"}) {
+		t.Errorf("months' own missing codes: %+v", pl.Dictionary)
+	}
+	// The data read with the plan: the codes are missing values.
+	if out, errs, code := runCLI("check", p); code != 0 || strings.Contains(out+errs, "outside") {
+		t.Errorf("check: exit %d\n%s%s", code, out, errs)
+	}
+}

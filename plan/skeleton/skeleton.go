@@ -240,6 +240,20 @@ func Write(in Input) ([]byte, error) {
 				w("%s{label: null, unit: null}   # EDIT the label (levels: categorical.%s)", key, c.Name)
 			case k.Word == "binary" || k.Word == "ordered?":
 				w("%s{values: [%s], label: null, unit: null}   # EDIT the label", key, yamlList(c.Values))
+			case k.Word == "numeric" && len(c.Codes) > 0 && c.MinOther >= 0 && c.MinOther <= c.Max:
+				// -9 below values that are all 0 or more: a missing-value
+				// code, offered as the column's own (the line is to be
+				// edited anyway).
+				codes := make([]string, len(c.Codes))
+				for j, v := range c.Codes {
+					codes[j] = num(v)
+				}
+				like := "which looks like a missing-value code"
+				if len(codes) > 1 {
+					like = "which look like missing-value codes"
+				}
+				w("%s{range: [%s, %s], missing: [%s], label: null, unit: null}   # EDIT: the possible range (observed %s to %s, and %s, %s below values that are all 0 or more: check)",
+					key, num(c.MinOther), num(c.Max), yamlList(codes), num(c.MinOther), num(c.Max), words.AndList(codes), like)
 			case k.Word == "numeric":
 				w("%s{range: [%s, %s], label: null, unit: null}   # EDIT: the possible range (observed %s to %s)", key, num(c.Min), num(c.Max), num(c.Min), num(c.Max))
 			default:

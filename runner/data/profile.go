@@ -21,7 +21,17 @@ type Profile struct {
 	Values   []string
 	Distinct int  // distinct non-missing values (counted up to MaxValues+1)
 	Many     bool // more than MaxValues distinct values
+	// Codes are the conventional missing-value codes (missingLikeCodes:
+	// -7, -8, -9, -77, ..., -9999) a numeric column holds, in order, and
+	// MinOther the smallest of its other values (+Inf when none): codes
+	// below values that are all 0 or more look like missing values.
+	Codes    []float64
+	MinOther float64
 }
+
+// missingLikeCodes are numbers that surveys and registers conventionally
+// write for a missing, refused or not applicable answer.
+var missingLikeCodes = []float64{-9999, -999, -99, -98, -97, -9, -8, -7, -888, -777, -88, -77}
 
 // MaxValues is the number of distinct values a profile lists.
 const MaxValues = 30
@@ -48,7 +58,7 @@ func ProfileFile(path string, missingTokens []string, d Dialect) ([]Profile, err
 	out := make([]Profile, len(names))
 	seen := make([]map[string]bool, len(names))
 	for i, n := range names {
-		out[i] = Profile{Name: n, Numeric: true, Integer: true, Min: math.Inf(1), Max: math.Inf(-1)}
+		out[i] = Profile{Name: n, Numeric: true, Integer: true, Min: math.Inf(1), Max: math.Inf(-1), MinOther: math.Inf(1)}
 		seen[i] = map[string]bool{}
 	}
 	for {
@@ -82,6 +92,13 @@ func ProfileFile(path string, missingTokens []string, d Dialect) ([]Profile, err
 					continue
 				}
 				p.Min, p.Max = math.Min(p.Min, v), math.Max(p.Max, v)
+				if slices.Contains(missingLikeCodes, v) {
+					if !slices.Contains(p.Codes, v) {
+						p.Codes = append(p.Codes, v)
+					}
+				} else {
+					p.MinOther = math.Min(p.MinOther, v)
+				}
 				if v != math.Trunc(v) {
 					p.Integer = false
 				}
@@ -117,8 +134,10 @@ func ProfileFile(path string, missingTokens []string, d Dialect) ([]Profile, err
 				}
 				return strings.Compare(a, b)
 			})
+			slices.Sort(p.Codes)
 		} else {
 			p.Min, p.Max = 0, 0
+			p.Codes, p.MinOther = nil, math.Inf(1)
 		}
 	}
 	return out, nil
