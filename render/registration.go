@@ -17,6 +17,9 @@ type lockWords struct {
 	forced  string // after "... the X was forced with --allow-unregistered-changes."
 	departs string // "This run departs from it": the plan the report is of
 	what    string // "run": what was forced
+	// folder: the report is of a run on data, which names the runs of
+	// the registered plan its output folder held (writeEarlierRegistered).
+	folder bool
 }
 
 var (
@@ -26,6 +29,7 @@ var (
 		forced:  "Results that depend on these changes were not fixed before the data were seen.",
 		departs: "This run departs from it",
 		what:    "run",
+		folder:  true,
 	}
 	rehearseLockWords = lockWords{
 		none:    "so nothing shows when this plan was fixed; `ordplan freeze` writes one before the real data are seen.",
@@ -52,12 +56,14 @@ func writeRegistration(d *doc, r *runner.Result) {
 	if r.Simulated != nil {
 		words = rehearseLockWords
 	}
-	writeLockStatus(d, r.Registration, r.Version, words)
+	writeLockStatus(d, r.Registration, r.Version, words, r.EarlierRegistered)
 }
 
 // writeLockStatus writes the plan compared with its lock (st nil: not
-// compared) in the words of the kind of report; version is the program's.
-func writeLockStatus(d *doc, st *lock.Status, version string, w lockWords) {
+// compared) in the words of the kind of report; version is the program's,
+// earlier the runs of the registered plan the output folder holds
+// (runner.EarlierRegisteredRuns).
+func writeLockStatus(d *doc, st *lock.Status, version string, w lockWords, earlier []runner.EarlierRun) {
 	if st == nil {
 		return
 	}
@@ -95,6 +101,9 @@ func writeLockStatus(d *doc, st *lock.Status, version string, w lockWords) {
 		rows = append(rows, []string{md(mdCode(c.Path)), md(codeCell(c.From)), md(codeCell(c.To)), reason})
 	}
 	d.table([]string{"Key", "Registered", "This " + w.what, "Stated reason"}, rows)
+	if w.folder {
+		writeEarlierRegistered(d, earlier)
+	}
 	if f.Version != version {
 		d.p("The lock was written by ordplan %s and this is ordplan %s: a key that the newer program adds to the canonical form shows as a change from (absent) although the plan file did not change.", f.Version, version)
 	}
@@ -118,5 +127,37 @@ func writeUnusedDeviations(d *doc, st *lock.Status) {
 		items = append(items, fmt.Sprintf("`%s` (plan line %d): %s", dv.Key, dv.Line, dv.Reason))
 	}
 	d.p("The plan's `deviations` list also names key(s) that did not change from the registered plan:")
+	d.list(items)
+}
+
+// writeEarlierRegistered says which runs of the registered plan, unchanged,
+// the output folder held when this run, which departs from it, was made:
+// their results existed before the deviations were run, which a reader
+// weighing the stated reasons needs to know. The program knows only this
+// folder's runs.
+func writeEarlierRegistered(d *doc, earlier []runner.EarlierRun) {
+	if len(earlier) == 0 {
+		d.p("This output folder held no earlier run of the registered plan unchanged (the program knows only the runs of this folder, its run.json and those kept under earlier/).")
+		return
+	}
+	items := make([]string, len(earlier))
+	same := 0
+	for i, e := range earlier {
+		data := "on other data (sha256 `" + short(e.DataSHA256) + "`)"
+		if e.SameData {
+			data = "on the same data"
+			same++
+		}
+		items[i] = fmt.Sprintf("decisions.json sha256 `%s`, %s", short(e.DecisionsSHA256), data)
+	}
+	runs := "1 run"
+	if len(earlier) > 1 {
+		runs = fmt.Sprintf("%d runs", len(earlier))
+	}
+	lead := fmt.Sprintf("**This output folder already held %s of the registered plan unchanged**", runs)
+	if same > 0 {
+		lead += fmt.Sprintf(", %d of them on the same data as this run", same)
+	}
+	d.p("%s: their results existed before this run departed from the plan, so the deviations above may have been chosen after seeing them. They are named by the SHA-256 of their decisions.json (in this folder's run.json or under earlier/):", lead)
 	d.list(items)
 }

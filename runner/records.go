@@ -207,6 +207,9 @@ func BuildDecisions(r *Result) *Decisions {
 		Data:    dataRef(r),
 		NewRows: newRowsRef(r),
 		Notes:   nonNil(r.Notes), Registration: registrationRecord(r.Registration), Simulated: r.Simulated}
+	if d.Registration != nil {
+		d.Registration.EarlierRegistered = r.EarlierRegistered
+	}
 	sampling := r.Analysis != nil && r.Analysis.Errors.Sampling
 	for _, or := range r.Outcomes {
 		read := or.AsRead()

@@ -32,6 +32,11 @@ type Result struct {
 
 	// Registration is the plan compared with its lock (nil: not compared).
 	Registration *lock.Status
+	// EarlierRegistered are the earlier runs of the registered plan,
+	// unchanged, that the output folder holds, when this run departs from
+	// it (EarlierRegisteredRuns): results of the registered plan existed
+	// before the deviations were run.
+	EarlierRegistered []EarlierRun
 	// Simulated is set when the data were simulated (ordplan rehearse).
 	Simulated *Simulation
 	// Analysis is the plan resolved: how the data were read, the fit

@@ -1,6 +1,8 @@
 package main
 
 import (
+	"crypto/sha256"
+	"encoding/hex"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -78,3 +80,61 @@ func TestFreezeRunDeviations(t *testing.T) {
 }
 
 func itoa(i int) string { return strconv.Itoa(i) }
+
+// A run that departs from the registered plan names the runs of the
+// registered plan, unchanged, that its output folder already held (by
+// the SHA-256 of their decisions.json, which stays the same when the run
+// is kept under earlier/), so a reader knows the deviations may have been
+// chosen after seeing them; a rerun of the deviated plan writes the same
+// bytes; in a fresh folder the report says it held none.
+func TestDeviationsNameEarlierRegisteredRuns(t *testing.T) {
+	dir := t.TempDir()
+	var data strings.Builder
+	data.WriteString("y,a,b\n")
+	for i := 0; i < 90; i++ {
+		a := float64(i%9) - 4
+		b := i % 2
+		y := 1 + (i*7+int(a)+3*b+20)%3
+		data.WriteString(strings.Join([]string{itoa(y), itoa(int(a)), itoa(b)}, ",") + "\n")
+	}
+	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(data.String()), 0o644)
+	planPath := filepath.Join(dir, "p.yaml")
+	src := "version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [a, b]\n" +
+		"models: {approaches: [cumulative], effects: [parallel, nonparallel]}\ntests: {parallel_lines: [lr]}\n" +
+		"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\n"
+	os.WriteFile(planPath, []byte(src), 0o644)
+	if out, errs, code := runCLI("freeze", planPath, "--registration", "REG 13"); code != 0 {
+		t.Fatalf("freeze: %d %s %s", code, out, errs)
+	}
+	o := filepath.Join(dir, "out")
+	run := func(out string) (string, string) {
+		if o, errs, code := runCLI("run", planPath, "--out", out, "--quiet"); code != 0 {
+			t.Fatalf("run: %d %s %s", code, o, errs)
+		}
+		md, _ := os.ReadFile(filepath.Join(out, "report.md"))
+		dec, _ := os.ReadFile(filepath.Join(out, "decisions.json"))
+		return string(md), string(dec)
+	}
+	_, registered := run(o)
+	sum := sha256.Sum256([]byte(registered))
+	want := hex.EncodeToString(sum[:])
+	os.WriteFile(planPath, []byte(strings.Replace(src, "{by: aic}", "{by: bic}", 1)+
+		"deviations:\n  - key: rules[1].choose.by\n    reason: BIC, as the protocol's section 4 says\n"), 0o644)
+	md, dec := run(o)
+	for _, s := range []string{"**This output folder already held 1 run of the registered plan unchanged**, 1 of them on the same data as this run: their results existed before this run departed from the plan",
+		"- decisions.json sha256 `" + want[:12] + "`, on the same data"} {
+		if !strings.Contains(md, s) {
+			t.Errorf("report.md lacks %q:\n%s", s, md)
+		}
+	}
+	if !strings.Contains(dec, `"decisions_sha256": "`+want+`"`) || !strings.Contains(dec, `"same_data": true`) {
+		t.Errorf("decisions.json lacks the earlier run:\n%.1500s", dec)
+	}
+	md2, dec2 := run(o) // the registered run is now under earlier/
+	if md2 != md || dec2 != dec {
+		t.Error("a rerun of the deviated plan changed the report or decisions.json")
+	}
+	if md, _ := run(filepath.Join(dir, "fresh")); !strings.Contains(md, "This output folder held no earlier run of the registered plan unchanged") {
+		t.Errorf("a fresh folder:\n%s", md)
+	}
+}

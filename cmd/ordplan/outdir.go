@@ -584,3 +584,32 @@ func recordChange(kept string, record []byte) string {
 	}
 	return words.AndList(changed)
 }
+
+// folderRecords reads the run records an output folder holds: its
+// run.json and those of the runs kept under earlier/ (keepEarlier), in
+// name order; files that are not ordplan records (or are links, or too
+// large) are passed over.
+func folderRecords(dir string) []runner.RunRecord {
+	paths := []string{filepath.Join(dir, recordFile)}
+	if more, err := filepath.Glob(filepath.Join(dir, earlierFolder, "*", recordFile)); err == nil {
+		slices.Sort(more)
+		paths = append(paths, more...)
+	}
+	var out []runner.RunRecord
+	for _, p := range paths {
+		fi, err := os.Lstat(p)
+		if err != nil || !fi.Mode().IsRegular() || fi.Size() > 64<<20 {
+			continue
+		}
+		b, err := os.ReadFile(p)
+		if err != nil {
+			continue
+		}
+		var rec runner.RunRecord
+		if json.Unmarshal(b, &rec) != nil || rec.Program != "ordplan" {
+			continue
+		}
+		out = append(out, rec)
+	}
+	return out
+}

@@ -146,6 +146,9 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	warnFound(p, res, stderr)
 	res.Command = commandLine(append([]string{"ordplan", "run"}, resultArgs(fs, rawArgs, planPath)...))
 	res.Registration = reg
+	// Runs of the registered plan, unchanged, that this folder already
+	// holds: results that existed before these deviations were run.
+	res.EarlierRegistered = runner.EarlierRegisteredRuns(reg, res.DataHash, folderRecords(dir))
 	dec := runner.BuildDecisions(res)
 	var changes []string
 	if prev != nil {
