@@ -13,21 +13,7 @@ import (
 // A plan frozen, run as frozen, changed with a reason, and changed without
 // one and forced: the report opens with the comparison each time.
 func TestFreezeRunDeviations(t *testing.T) {
-	dir := t.TempDir()
-	var data strings.Builder
-	data.WriteString("y,a,b\n")
-	for i := 0; i < 90; i++ {
-		a := float64(i%9) - 4
-		b := i % 2
-		y := 1 + (i*7+int(a)+3*b+20)%3
-		data.WriteString(strings.Join([]string{itoa(y), itoa(int(a)), itoa(b)}, ",") + "\n")
-	}
-	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(data.String()), 0o644)
-	planPath := filepath.Join(dir, "p.yaml")
-	src := "version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [a, b]\n" +
-		"models: {approaches: [cumulative], effects: [parallel, nonparallel]}\ntests: {parallel_lines: [lr]}\n" +
-		"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\n"
-	os.WriteFile(planPath, []byte(src), 0o644)
+	dir, planPath, src := deviationStudy(t)
 	out, errs, code := runCLI("freeze", planPath, "--registration", "REG 12")
 	if code != 0 || !strings.Contains(out, "p.lock.json") {
 		t.Fatalf("freeze: %d %s %s", code, out, errs)
@@ -81,14 +67,12 @@ func TestFreezeRunDeviations(t *testing.T) {
 
 func itoa(i int) string { return strconv.Itoa(i) }
 
-// A run that departs from the registered plan names the runs of the
-// registered plan, unchanged, that its output folder already held (by
-// the SHA-256 of their decisions.json, which stays the same when the run
-// is kept under earlier/), so a reader knows the deviations may have been
-// chosen after seeing them; a rerun of the deviated plan writes the same
-// bytes; in a fresh folder the report says it held none.
-func TestDeviationsNameEarlierRegisteredRuns(t *testing.T) {
-	dir := t.TempDir()
+// deviationStudy writes an invented three-category study of 90 rows
+// (d.csv, a deterministic pattern) and its plan p.yaml, to be frozen and
+// then changed: the folder, the plan's path and its text.
+func deviationStudy(t *testing.T) (dir, planPath, src string) {
+	t.Helper()
+	dir = t.TempDir()
 	var data strings.Builder
 	data.WriteString("y,a,b\n")
 	for i := 0; i < 90; i++ {
@@ -98,11 +82,22 @@ func TestDeviationsNameEarlierRegisteredRuns(t *testing.T) {
 		data.WriteString(strings.Join([]string{itoa(y), itoa(int(a)), itoa(b)}, ",") + "\n")
 	}
 	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(data.String()), 0o644)
-	planPath := filepath.Join(dir, "p.yaml")
-	src := "version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [a, b]\n" +
+	planPath = filepath.Join(dir, "p.yaml")
+	src = "version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [a, b]\n" +
 		"models: {approaches: [cumulative], effects: [parallel, nonparallel]}\ntests: {parallel_lines: [lr]}\n" +
 		"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\n"
 	os.WriteFile(planPath, []byte(src), 0o644)
+	return dir, planPath, src
+}
+
+// A run that departs from the registered plan names the runs of the
+// registered plan, unchanged, that its output folder already held (by
+// the SHA-256 of their decisions.json, which stays the same when the run
+// is kept under earlier/), so a reader knows the deviations may have been
+// chosen after seeing them; a rerun of the deviated plan writes the same
+// bytes; in a fresh folder the report says it held none.
+func TestDeviationsNameEarlierRegisteredRuns(t *testing.T) {
+	dir, planPath, src := deviationStudy(t)
 	if out, errs, code := runCLI("freeze", planPath, "--registration", "REG 13"); code != 0 {
 		t.Fatalf("freeze: %d %s %s", code, out, errs)
 	}
