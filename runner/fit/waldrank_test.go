@@ -248,6 +248,9 @@ func TestFewClustersRejectTooOften(t *testing.T) {
 				rejected++
 			}
 		}
+		if made < reps/2 {
+			t.Fatalf("G = %d: only %d of %d data sets gave a fit and a clustered covariance", G, made, reps)
+		}
 		rates[G] = float64(rejected) / float64(made)
 		t.Logf("G = %2d: %d of %d rejected at 5%% (%.1f%%)", G, rejected, made, 100*rates[G])
 	}
