@@ -38,6 +38,29 @@ type Inference struct {
 	// predictions by the chosen model are written to predictions.csv.
 	Predict     string
 	PredictPath string // resolved against the plan's folder
+	// TermTests is which tests of each term of the chosen model are
+	// computed: TermTestsBoth (default), TermTestsWald, TermTestsLR or
+	// TermTestsNone (the likelihood-ratio test costs a refit per term,
+	// and per imputed set).
+	TermTests string
+}
+
+// The words of inference.term_tests.
+const (
+	TermTestsBoth = "both" // the Wald and the likelihood-ratio test
+	TermTestsWald = "wald" // the Wald test only: no refits
+	TermTestsLR   = "lr"   // the likelihood-ratio test only
+	TermTestsNone = "none" // no test of each term
+)
+
+// WantsTermWald and WantsTermLR say whether the plan asks for the Wald
+// and the likelihood-ratio test of each term.
+func (inf Inference) WantsTermWald() bool {
+	return inf.TermTests == "" || inf.TermTests == TermTestsBoth || inf.TermTests == TermTestsWald
+}
+
+func (inf Inference) WantsTermLR() bool {
+	return inf.TermTests == "" || inf.TermTests == TermTestsBoth || inf.TermTests == TermTestsLR
 }
 
 // LevelPairs is inference.level_pairs: the categorical columns whose
@@ -78,16 +101,19 @@ var (
 	inferenceKeys       = keysAt("inference")
 	marginalEffectWords = []string{"average", "means", "profile"}
 	multiplicityWords   = []string{MultiplicityNone, MultiplicityHolm, MultiplicityBH}
+	termTestWords       = []string{TermTestsBoth, TermTestsWald, TermTestsLR, TermTestsNone}
 )
 
 // decodeInference reads the inference section.
 func (d *decoder) decodeInference(n *yaml.Node, inf *Inference, dir string) {
 	inf.MarginalEffects = []string{"average"}
 	inf.Multiplicity = MultiplicityNone
+	inf.TermTests = TermTestsBoth
 	m := d.mapping(n, "inference", inferenceKeys)
 	if m == nil {
 		return
 	}
+	m.word("term_tests", "choice of term tests", termTestWords, &inf.TermTests)
 	m.word("multiplicity", "multiplicity correction", multiplicityWords, &inf.Multiplicity)
 	if inf.Multiplicity != MultiplicityNone && m.get("hypotheses") == nil {
 		d.errAt(m.at("multiplicity"), "corrects the p-values of the plan's hypotheses, and inference.hypotheses is not given")
@@ -258,6 +284,9 @@ func (d *decoder) checkInference(p *Plan) {
 			d.errAt(key, "want a finite number, got %s", quote(a.written))
 		}
 	}
+	if inf.TermTests == TermTestsLR && p.Data.Sampling() && d.clean("data") {
+		d.errAt("inference.term_tests", "the likelihood-ratio test needs a likelihood, but with sampling weights (data.weight_kind: sampling) the fits maximize a pseudo-likelihood, so no term would be tested; use wald (or both, which shows the likelihood-ratio tests as not computed)")
+	}
 	d.checkLevelPairs(p)
 	d.checkHypothesisNames(p)
 	hasProfile := slices.Contains(inf.MarginalEffects, "profile")
@@ -277,6 +306,9 @@ type canonInference struct {
 	Profile         map[string]any `json:"profile,omitempty"`
 	Predict         *string        `json:"predict"`
 	LevelPairs      *canonPairs    `json:"level_pairs,omitempty"`
+	// TermTests is left out when it is the default (both), so that the
+	// canonical form of a plan written before the key existed is unchanged.
+	TermTests string `json:"term_tests,omitempty"`
 }
 
 // canonPairs is the canonical form of inference.level_pairs.
@@ -301,6 +333,9 @@ func (inf *Inference) canonical() canonInference {
 	}
 	if lp := inf.LevelPairs; lp != nil {
 		c.LevelPairs = &canonPairs{Predictors: lp.Predictors, Multiplicity: lp.Multiplicity}
+	}
+	if inf.TermTests != TermTestsBoth {
+		c.TermTests = inf.TermTests
 	}
 	if inf.Predict != "" {
 		s := inf.Predict

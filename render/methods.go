@@ -217,8 +217,11 @@ func writeMethods(d *doc, r *runner.Result) {
 		if or.GOFPooling != nil && or.Lipsitz != nil && !sampling {
 			s = append(s, fmt.Sprintf("On the imputed data these goodness-of-fit tests were computed on each imputed set with that set's fit of the chosen model, and their chi-square statistics were combined by the D2 rule %s, an approximation that is less powerful than the pooled tests of estimates or likelihoods.", c.cite("d2")))
 		}
-		if len(or.TermTests) > 0 {
-			s = append(s, termTestsMethods(or, sampling, c))
+		switch {
+		case len(or.TermTests) > 0:
+			s = append(s, termTestsMethods(or, p.Inference, sampling, c))
+		case or.Chosen != nil && p.Inference.TermTests == plan.TermTestsNone:
+			s = append(s, "The plan switched the tests of each term of the chosen model off (`inference.term_tests: none`).")
 		}
 		starts := p.Models.HasEffects(fit.ConstrainedEffects) || p.Models.HasEffects(fit.StereotypeEffects)
 		switch {
@@ -388,19 +391,28 @@ func onlyCumulativeLogit(approaches []fit.Comparison, links []fit.Link) bool {
 
 // termTestsMethods says how each term of the chosen model was tested, and
 // what the tests assume.
-func termTestsMethods(or *runner.OutcomeResult, sampling bool, c *citer) string {
+func termTestsMethods(or *runner.OutcomeResult, inf plan.Inference, sampling bool, c *citer) string {
 	var s []string
-	if sampling {
+	wald, lr := inf.WantsTermWald(), inf.WantsTermLR() && !sampling
+	switch {
+	case !inf.WantsTermLR():
+		s = append(s, fmt.Sprintf("Each term of the chosen model was tested by a Wald test that all its slopes are 0, with the model's standard errors; the plan left out the likelihood-ratio tests (`inference.term_tests: %s`).", inf.TermTests))
+	case !wald:
+		s = append(s, fmt.Sprintf("Each term of the chosen model was tested by a likelihood-ratio test against the chosen model refitted without the term on the same rows; the plan left out the Wald tests (`inference.term_tests: %s`).", inf.TermTests))
+	case sampling:
 		s = append(s, "Each term of the chosen model was tested by a Wald test that all its slopes are 0, with the model's standard errors; with sampling weights the likelihood-ratio test against the model refitted without the term has no chi-square reference and was not computed.")
-	} else {
+	default:
 		s = append(s, "Each term of the chosen model was tested by a Wald test that all its slopes are 0 and by a likelihood-ratio test against the chosen model refitted without the term on the same rows.")
 	}
 	s = append(s, "A term that takes part in an interaction was tested together with every interaction containing it, and each interaction on its own.")
 	if or.Imputed != nil {
-		if sampling {
-			s = append(s, fmt.Sprintf("On the imputed data the Wald tests were pooled by the D1 rule %s.", c.cite("d1")))
-		} else {
+		switch {
+		case wald && lr:
 			s = append(s, fmt.Sprintf("On the imputed data the Wald tests were pooled by the D1 rule %s and the likelihood-ratio tests by the D3 rule %s.", c.cite("d1"), c.cite("d3")))
+		case wald:
+			s = append(s, fmt.Sprintf("On the imputed data the Wald tests were pooled by the D1 rule %s.", c.cite("d1")))
+		case lr:
+			s = append(s, fmt.Sprintf("On the imputed data the likelihood-ratio tests were pooled by the D3 rule %s.", c.cite("d3")))
 		}
 	}
 	s = append(s, "These tests assume the chosen model holds and refer their statistics to large-sample distributions: the Wald and likelihood-ratio statistics can differ in small samples, in large samples they reject for effects too small to matter, and a term associated with the outcome given the others is not thereby a cause of it; their p-values were not corrected for the number of terms tested.")

@@ -4,6 +4,7 @@ import (
 	"strconv"
 	"strings"
 
+	"ordplan/plan"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/fit"
@@ -11,11 +12,33 @@ import (
 
 // writeTermTests writes the tests of each term of the chosen model.
 func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
+	inf := plan.Inference{}
+	if r.Analysis != nil {
+		inf = r.Analysis.Inference
+	}
 	if len(or.TermTests) == 0 {
+		if inf.TermTests == plan.TermTestsNone && or.Chosen != nil {
+			d.h(4, "Tests of each term")
+			d.p("Not computed: the plan switches the tests of each term of the chosen model off (`inference.term_tests: none`). Whether each term is associated with the outcome at all, given the other terms, is not tested here; the estimates and their intervals are shown above.")
+		}
 		return
 	}
 	d.h(4, "Tests of each term")
 	d.p("Is each term associated with the outcome at all, given the other terms? For each term two tests of the hypothesis that all its slopes in the chosen model, %s, are 0 at every boundary: the Wald test, from the estimates and the model's standard errors, and the likelihood-ratio test, which compares the chosen model with the same model (comparison, link, effect structure of every other column) fitted without the term on the same rows. A term inside an interaction is tested together with every interaction containing it (column Tested with): its own slopes alone would measure its effect only where the other terms of the interaction are 0, which depends on their coding and centring; the interaction itself is tested alone. A constrained column that is the only column of its constraint group is tested by its effects at every boundary (the group's common factor goes with it); several columns that make up a whole constraint group have no test, since without them the common factor is not identified.", or.Chosen.ID)
+	wald, lr := inf.WantsTermWald(), inf.WantsTermLR()
+	switch {
+	case !lr:
+		d.p("The plan asks for the Wald test only (`inference.term_tests: %s`): the likelihood-ratio tests, which refit the model once per term, were not computed.", inf.TermTests)
+	case !wald:
+		d.p("The plan asks for the likelihood-ratio test only (`inference.term_tests: %s`): the Wald tests were not computed.", inf.TermTests)
+	}
+	head := []string{"Term", "Tested with"}
+	if wald {
+		head = append(head, "Wald", "p")
+	}
+	if lr {
+		head = append(head, "Likelihood ratio", "p")
+	}
 	pooled := false
 	var rows [][]string
 	for _, tt := range or.TermTests {
@@ -24,21 +47,32 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			with = strings.Join(tt.With, ", ")
 		}
 		row := []string{tt.Term, with}
-		for _, t := range []fit.Test{tt.Wald, tt.LR} {
-			pooled = pooled || t.Pooled != ""
-			row = append(row, termStatistic(t)...)
+		if wald {
+			pooled = pooled || tt.Wald.Pooled != ""
+			row = append(row, termStatistic(tt.Wald)...)
 		}
-		if !tt.Wald.OK && !tt.LR.OK && tt.Wald.Reason == tt.LR.Reason {
+		if lr {
+			pooled = pooled || tt.LR.Pooled != ""
+			row = append(row, termStatistic(tt.LR)...)
+		}
+		if wald && lr && !tt.Wald.OK && !tt.LR.OK && tt.Wald.Reason == tt.LR.Reason {
 			row[4] = "not computed (the same reason)"
 		}
 		rows = append(rows, row)
 	}
-	d.captioned("Tests of each term of "+or.Chosen.ID).table([]string{"Term", "Tested with", "Wald", "p", "Likelihood ratio", "p"}, rows)
+	d.captioned("Tests of each term of "+or.Chosen.ID).table(head, rows)
 	if a := r.Analysis; a != nil && a.Errors.Covariance.IsSandwich() && !a.Errors.Sampling {
 		d.p("The Wald tests use the standard errors of the %s, which do not rest on the model's variance being right; the likelihood-ratio tests rest on it (and treat the rows as independent), so where the two disagree this may be why.", a.Errors.Covariance.Phrase())
 	}
 	if pooled {
-		d.p("On imputed data the Wald test is pooled over the sets by D1 and the likelihood-ratio test by D3 (each set's statistic at its own estimates and at the pooled ones); both are F statistics on the degrees of freedom shown.")
+		switch {
+		case wald && lr:
+			d.p("On imputed data the Wald test is pooled over the sets by D1 and the likelihood-ratio test by D3 (each set's statistic at its own estimates and at the pooled ones); both are F statistics on the degrees of freedom shown.")
+		case wald:
+			d.p("On imputed data the Wald test is pooled over the sets by D1, an F statistic on the degrees of freedom shown.")
+		default:
+			d.p("On imputed data the likelihood-ratio test is pooled over the sets by D3 (each set's statistic at its own estimates and at the pooled ones), an F statistic on the degrees of freedom shown.")
+		}
 	}
 	d.p("The two tests rest on the same large-sample theory and agree closely in large samples; in small samples, or when an effect is large, they can differ, and the likelihood ratio is then usually preferred (it does not depend on how the model is parameterized; the Wald test does). With many observations both reject for effects too small to matter: read them with the estimates. A small p-value says the term is associated with the outcome given the other terms, not that it causes it. The p-values are not corrected for the number of terms tested (the plan's `inference.multiplicity` applies to its hypotheses only).")
 }

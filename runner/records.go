@@ -80,8 +80,11 @@ type OutcomeDecisions struct {
 	GOFPooling *GOFPooling        `json:"goodness_of_fit_pooling,omitempty"`
 	Hypotheses []HypothesisResult `json:"hypotheses,omitempty"`
 	// TermTests: each term of the chosen model tested (absent without one).
-	TermTests []TermTest    `json:"term_tests,omitempty"`
-	Marginal  []MarginalSet `json:"marginal_effects,omitempty"`
+	TermTests []TermTest `json:"term_tests,omitempty"`
+	// TermTestsOff says why there are no term tests when the plan
+	// switches them off (inference.term_tests: none).
+	TermTestsOff string        `json:"term_tests_off,omitempty"`
+	Marginal     []MarginalSet `json:"marginal_effects,omitempty"`
 	// LevelPairs: comparisons between every pair of levels of the
 	// categorical predictors of inference.level_pairs.
 	LevelPairs []LevelPairSet `json:"level_pairs,omitempty"`
@@ -258,6 +261,9 @@ func BuildDecisions(r *Result) *Decisions {
 		od.GOFPooling = or.GOFPooling
 		od.Hypotheses = or.Hypotheses
 		od.TermTests = or.TermTests
+		if r.Analysis != nil && termTestsOff(r.Analysis) && or.Chosen != nil {
+			od.TermTestsOff = "switched off by the plan (inference.term_tests: none)"
+		}
 		od.Marginal = or.Marginal
 		od.LevelPairs = or.LevelPairs
 		if or.NewRows != nil {

@@ -5,6 +5,7 @@ import (
 	"slices"
 	"strings"
 
+	"ordplan/plan"
 	"ordplan/runner/fit"
 )
 
@@ -116,7 +117,7 @@ func withoutColumns(d *fit.Data, cols []string) *fit.Data {
 // entries where none is fitted: a test barred under sampling weights, or
 // a hypothesis with no chi-square reference).
 func startTermTests(an *Analysis, or *OutcomeResult, wald func(*fit.NoEffect) fit.Test) ([]TermTest, []termScope, []*FitEntry) {
-	res := or.Chosen.Result
+	res, inf := or.Chosen.Result, an.Inference
 	scopes := termScopes(or)
 	out := make([]TermTest, len(scopes))
 	refits := make([]*FitEntry, len(scopes))
@@ -125,11 +126,24 @@ func startTermTests(an *Analysis, or *OutcomeResult, wald func(*fit.NoEffect) fi
 		ne, err := res.NoEffectOf(sc.columns)
 		if err != nil {
 			tt.Wald, tt.LR = missingTest(fit.TestWald, err.Error()), missingTest(fit.TestLR, err.Error())
+		}
+		if !inf.WantsTermWald() {
+			tt.Wald = notAskedTest(fit.TestWald, inf.TermTests)
+		}
+		if !inf.WantsTermLR() {
+			tt.LR = notAskedTest(fit.TestLR, inf.TermTests)
+		}
+		if err != nil {
 			out[i] = tt
 			continue
 		}
-		tt.Tested, tt.Wald = ne.Names, wald(ne)
-		if t, barred := barredTest(an.Errors.Sampling, fit.TestLR, false); barred {
+		tt.Tested = ne.Names
+		if inf.WantsTermWald() {
+			tt.Wald = wald(ne)
+		}
+		if !inf.WantsTermLR() {
+			// No refit.
+		} else if t, barred := barredTest(an.Errors.Sampling, fit.TestLR, false); barred {
 			tt.LR = t
 		} else {
 			refits[i] = without(or.Chosen, sc)
@@ -140,11 +154,20 @@ func startTermTests(an *Analysis, or *OutcomeResult, wald func(*fit.NoEffect) fi
 	return out, scopes, refits
 }
 
+// notAskedTest is a term test the plan leaves out (inference.term_tests
+// is the word it gives).
+func notAskedTest(kind fit.TestKind, word string) fit.Test {
+	return missingTest(kind, fmt.Sprintf("left out by the plan (inference.term_tests: %s)", word))
+}
+
+// termTestsOff says the plan switches the tests of each term off.
+func termTestsOff(an *Analysis) bool { return an.Inference.TermTests == plan.TermTestsNone }
+
 // runTermTests tests each term of the chosen model (TermTest): the Wald
 // test in the chosen fit, and the likelihood-ratio test against its refit
 // without the term's columns on the same rows, made here through fitGrids.
 func runTermTests(an *Analysis, or *OutcomeResult, opt Options) {
-	if or.Chosen == nil || !or.Chosen.OK() {
+	if or.Chosen == nil || !or.Chosen.OK() || termTestsOff(an) {
 		return
 	}
 	res := or.Chosen.Result
@@ -199,7 +222,7 @@ func termColumnsDropped(r, f *FitEntry) []string {
 // chosen model's and the refit's fits on every imputed set (the refit
 // pooled by Rubin's rules for the statistics at the pooled estimates).
 func runPooledTermTests(an *Analysis, or *OutcomeResult, opt Options) {
-	if or.Chosen == nil || !or.Chosen.OK() || or.Chosen.Pooled == nil {
+	if or.Chosen == nil || !or.Chosen.OK() || or.Chosen.Pooled == nil || termTestsOff(an) {
 		return
 	}
 	res, pl := or.Chosen.Result, or.Chosen.Pooled

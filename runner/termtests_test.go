@@ -353,3 +353,44 @@ func TestTermTestOfOnlyTerm(t *testing.T) {
 		t.Errorf("type: %+v; against the thresholds-only model: %+v", lr, all)
 	}
 }
+
+// TestTermTestsChosenByPlan: inference.term_tests leaves out what the
+// plan does not ask for. wald: the Wald tests are those of the default
+// (both) and no model is refitted; lr: the likelihood-ratio tests are the
+// default's; none: no test, and decisions.json says why. On the housing
+// table collapsed to two categories (whose default tests
+// TestTermTestsAgainstGlm checks against glm).
+func TestTermTestsChosenByPlan(t *testing.T) {
+	dir := t.TempDir()
+	src := housingTwo(t, dir)
+	both := runPlan(t, planIn(t, dir, src), 0).Outcomes[0]
+	for _, word := range []string{"wald", "lr", "none"} {
+		r := runPlan(t, planIn(t, dir, src+"inference: {term_tests: "+word+"}\n"), 0)
+		or := r.Outcomes[0]
+		off := BuildDecisions(r).Outcomes[0].TermTestsOff
+		if word == "none" {
+			if len(or.TermTests) != 0 || !strings.Contains(off, "inference.term_tests: none") {
+				t.Errorf("none: %+v; decisions say %q", or.TermTests, off)
+			}
+			continue
+		}
+		if len(or.TermTests) != len(both.TermTests) || off != "" {
+			t.Fatalf("%s: %d tests, %d by default; off %q", word, len(or.TermTests), len(both.TermTests), off)
+		}
+		for i, tt := range or.TermTests {
+			kept, left, ref := tt.Wald, tt.LR, both.TermTests[i].Wald
+			if word == "lr" {
+				kept, left, ref = tt.LR, tt.Wald, both.TermTests[i].LR
+			}
+			if kept != ref {
+				t.Errorf("%s, %s: %+v, by default %+v", word, tt.Term, kept, ref)
+			}
+			if left.OK || left.Reason != "left out by the plan (inference.term_tests: "+word+")" {
+				t.Errorf("%s, %s: the test left out is %+v", word, tt.Term, left)
+			}
+			if (word == "wald") != (tt.Without == "") {
+				t.Errorf("%s, %s: refit %q", word, tt.Term, tt.Without)
+			}
+		}
+	}
+}
