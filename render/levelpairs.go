@@ -51,6 +51,7 @@ func writeLevelPairs(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		}
 		d.p("These are differences between groups in the fitted association, other predictors as observed: they do not say what moving a unit from one level to the other would change.")
 		writePairEffects(d, or, set, level)
+		writePairsAtPoints(d, r, or, set, level)
 		writePairOddsRatios(d, or, set, level)
 	}
 }
@@ -61,22 +62,29 @@ func writePairEffects(d *doc, or *runner.OutcomeResult, set runner.LevelPairSet,
 		d.p("Differences of average marginal effects not computed: %s.", mdText(me.Error))
 		return
 	}
-	adj := pairAdjustment(set.Multiplicity)
+	if me.Pooling != nil {
+		d.p("On imputed data each difference was computed on each of the %d imputed sets (that set's fit and rows) and pooled by Rubin's rules, as the marginal effects are: p-values and intervals use t on the Barnard-Rubin degrees of freedom (df; inf when the sets agree), and FMI is the fraction of missing information.", or.Imputed.M)
+	}
+	d.captioned("Differences of average marginal effects between the levels of " + mdText(set.Predictor)).table(pairTable(me, set.EffectsAdjusted, set.Multiplicity, level))
+}
+
+// pairTable is the head and rows of a table of differences between pairs
+// of levels, with their adjusted p-values (nil: not adjusted) by method.
+func pairTable(me runner.MarginalSet, adjusted []float64, method string, level float64) ([]string, [][]string) {
 	head := []string{"Change", "Category", "Difference", "Std. error", "z", "p"}
-	if set.EffectsAdjusted != nil {
-		head = append(head, "p, "+adj)
+	if adjusted != nil {
+		head = append(head, "p, "+pairAdjustment(method))
 	}
 	head = append(head, pct(level)+" low", pct(level)+" high")
 	if me.Pooling != nil {
-		d.p("On imputed data each difference was computed on each of the %d imputed sets (that set's fit and rows) and pooled by Rubin's rules, as the marginal effects are: p-values and intervals use t on the Barnard-Rubin degrees of freedom (df; inf when the sets agree), and FMI is the fraction of missing information.", or.Imputed.M)
 		head[4] = "t"
 		head = append(head, "df", "FMI")
 	}
 	var rows [][]string
 	for e, x := range me.Effects {
 		row := []string{x.Change, x.Category, numfmt.Est(x.Effect), numfmt.Est(x.SE), numfmt.Z(x.Z), numfmt.PValue(x.P)}
-		if set.EffectsAdjusted != nil {
-			row = append(row, numfmt.PValue(set.EffectsAdjusted[e]))
+		if adjusted != nil {
+			row = append(row, numfmt.PValue(adjusted[e]))
 		}
 		row = append(row, numfmt.Est(x.Low), numfmt.Est(x.High))
 		if me.Pooling != nil {
@@ -84,7 +92,90 @@ func writePairEffects(d *doc, or *runner.OutcomeResult, set runner.LevelPairSet,
 		}
 		rows = append(rows, row)
 	}
-	d.captioned("Differences of average marginal effects between the levels of "+mdText(set.Predictor)).table(head, rows)
+	return head, rows
+}
+
+// pointWords says at what point differences between pairs of levels of
+// one kind (means or profile) are taken.
+func pointWords(kind string) string {
+	if kind == "profile" {
+		return "at the plan's profile"
+	}
+	return "at the means"
+}
+
+// writePairsAtPoints writes the differences between every pair of levels
+// of one predictor at each point the plan's marginal effects ask for (the
+// means, the profile).
+func writePairsAtPoints(d *doc, r *runner.Result, or *runner.OutcomeResult, set runner.LevelPairSet, level float64) {
+	name := mdText(set.Predictor)
+	s := -1
+	if or.Design != nil {
+		s = or.Design.Source(set.Predictor)
+	}
+	for k, pt := range set.AtPoints {
+		me := pt.Effects
+		at := pointWords(me.Kind)
+		if me.Error != "" {
+			d.p("Differences of predicted probabilities between the levels of %s %s not computed: %s.", name, at, mdText(me.Error))
+			continue
+		}
+		held := "every other numeric predictor at its mean over the rows used and every other categorical one at its reference level (not at its shares in the data)"
+		switch {
+		case me.Kind == "means" && !others(or, s, true):
+			held = "every other predictor at its mean over the rows used"
+		case me.Kind == "means" && !others(or, s, false):
+			held = "every other predictor, all categorical, at its reference level (not at its shares in the data)"
+		case me.Kind == "profile":
+			held = "the other predictors at the values the plan's profile gives them, those it does not set at their means over the rows used (categorical ones at their reference level)"
+		}
+		overridden := ""
+		if me.Kind == "profile" && r.Analysis != nil {
+			for _, v := range r.Analysis.Inference.Profile {
+				if v.Predictor == set.Predictor && v.Level != "" {
+					overridden = fmt.Sprintf(" The profile's own level of %s (%s) is not used here: each pair sets %s to its two levels.", name, mdText(v.Level), name)
+				}
+			}
+		}
+		pooled := ""
+		if me.Pooling != nil {
+			pooled = fmt.Sprintf(" On imputed data each difference was computed on each of the %d imputed sets (that set's fit, at that set's own means) and pooled by Rubin's rules, as the marginal effects %s are: p-values and intervals use t on the Barnard-Rubin degrees of freedom (df; inf when the sets agree), and FMI is the fraction of missing information; the point shown is the mean of the sets' points.", or.Imputed.M, at)
+		}
+		d.p("**Pairs %s.** For the pair \"a to b\" the difference is the probability of each category predicted for one unit with %s at b less that predicted with %s at a, %s: %s. The pairs from the reference %s are the marginal effects of %s %s above; a pair of two other levels is the difference of their effects against the reference at this point. Standard errors by the delta method on the whole covariance of the model's parameters; intervals at %s, symmetric about the difference.%s%s %s",
+			at, name, name, held, pointExcept(or, me.Point, s), mdText(set.Levels[0]), name, at, pct(level), overridden, pooled,
+			pairFamilyText(set, "the pairs for one category "+at))
+		if k == 0 {
+			d.p("A difference at one point compares two groups that share that one covariate profile, in the fitted association: it describes units like that point, not the rows used on average (the average differences above can differ from it in size, even in sign), and it does not say what moving a unit from one level to the other would change.")
+		}
+		d.captioned("Differences of predicted probabilities " + at + " between the levels of " + name).table(pairTable(me, pt.Adjusted, set.Multiplicity, level))
+	}
+}
+
+// others reports whether the predictors read other categorical columns
+// (categorical) or numeric ones than source s.
+func others(or *runner.OutcomeResult, s int, categorical bool) bool {
+	if or.Design == nil {
+		return !categorical
+	}
+	for k, src := range or.Design.Sources {
+		if k != s && (src.Cat != nil) == categorical {
+			return true
+		}
+	}
+	return false
+}
+
+// pointExcept writes the raw row of a point without column s (the column
+// a comparison sets to each of its levels).
+func pointExcept(or *runner.OutcomeResult, x []float64, s int) string {
+	parts := pointParts(or, x)
+	if s >= 0 && s < len(parts) {
+		parts = slices.Delete(parts, s, s+1)
+	}
+	if len(parts) == 0 {
+		return "no other predictor"
+	}
+	return strings.Join(parts, ", ")
 }
 
 func writePairOddsRatios(d *doc, or *runner.OutcomeResult, set runner.LevelPairSet, level float64) {
@@ -150,6 +241,19 @@ func levelPairsCSV(or *runner.OutcomeResult) [][]string {
 			}
 			rows = append(rows, []string{set.Predictor, "average_marginal_effect", x.Change, x.Category, "", csvNum(x.Effect), csvNum(x.SE), csvNum(x.Z), csvNum(x.P), adj, set.Multiplicity, csvNum(x.Low), csvNum(x.High), df})
 		}
+		for _, pt := range set.AtPoints {
+			for e, x := range pt.Effects.Effects {
+				adj := ""
+				if pt.Adjusted != nil {
+					adj = csvNum(pt.Adjusted[e])
+				}
+				df := ""
+				if pooled && e < len(pt.Effects.Pooling) && pt.Effects.Pooling[e].DF != nil {
+					df = csvNum(*pt.Effects.Pooling[e].DF)
+				}
+				rows = append(rows, []string{set.Predictor, "effect_at_" + pt.Effects.Kind, x.Change, x.Category, "", csvNum(x.Effect), csvNum(x.SE), csvNum(x.Z), csvNum(x.P), adj, set.Multiplicity, csvNum(x.Low), csvNum(x.High), df})
+			}
+		}
 		for _, o := range set.OddsRatios {
 			adj := ""
 			if o.Adjusted != nil {
@@ -164,25 +268,38 @@ func levelPairsCSV(or *runner.OutcomeResult) [][]string {
 // levelPairsMethods is the methods paragraph's sentence on the pairs of
 // levels ("" when the plan asks for none).
 func levelPairsMethods(or *runner.OutcomeResult) string {
-	var names []string
+	var names, points []string
 	method := ""
 	for _, set := range or.LevelPairs {
 		if set.Note == "" {
 			names = append(names, fmt.Sprintf("%s (%d pairs)", mdText(set.Predictor), set.Family))
 			method = set.Multiplicity
+			for _, pt := range set.AtPoints {
+				if at := pointWords(pt.Effects.Kind); !slices.Contains(points, at) {
+					points = append(points, at)
+				}
+			}
 		}
 	}
 	if len(names) == 0 {
 		return ""
 	}
-	s := fmt.Sprintf("Every pair of levels of %s was compared in the chosen model by the difference of the two levels' average marginal effects, each level set in every row used and the predicted probabilities averaged (and, under the logit link, by the odds ratio of one level against the other), with delta-method standard errors on the whole covariance of the parameters", strings.Join(names, ", "))
+	s := fmt.Sprintf("Every pair of levels of %s was compared in the chosen model by the difference of the two levels' average marginal effects, each level set in every row used and the predicted probabilities averaged", strings.Join(names, ", "))
+	if len(points) > 0 {
+		s += fmt.Sprintf(", and by the difference of the probabilities predicted at the two levels with the other predictors held %s, where the marginal effects there are taken", strings.Join(points, " and "))
+	}
+	s += " (and, under the logit link, by the odds ratio of one level against the other), with delta-method standard errors on the whole covariance of the parameters"
 	if or.Imputed != nil {
 		s += "; on imputed data the differences were computed on each imputed set and pooled by Rubin's rules"
 	}
 	if method == plan.MultiplicityNone {
 		s += "; their p-values were not adjusted for the number of pairs."
 	} else {
-		s += fmt.Sprintf("; their p-values were adjusted by %s within each predictor's pairs for one category (odds ratios: at one boundary).", runner.MultiplicityName(method))
+		at := ""
+		if len(points) > 0 {
+			at = ", averaged or at one point"
+		}
+		s += fmt.Sprintf("; their p-values were adjusted by %s within each predictor's pairs for one category%s (odds ratios: at one boundary).", runner.MultiplicityName(method), at)
 	}
 	return s + " They compare groups in the fitted association and are not effects of changing a unit's level."
 }

@@ -92,3 +92,61 @@ inference:
 		}
 	}
 }
+
+// The pairs of levels at the points of the marginal effects (means and the
+// plan's profile): a section for each with its point (the paired column
+// left out), what the differences mean, the adjustment, the profile's own
+// level of the paired column said to be unused; rows of
+// table-level-pairs-*.csv of kinds effect_at_means and effect_at_profile;
+// decisions.json's at_points.
+func TestLevelPairsAtPointsReport(t *testing.T) {
+	dir := t.TempDir()
+	if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(levelPairsData()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	src := `version: 1
+title: pairs
+data: {file: d.csv}
+outcomes: [{column: y, categories: ["1", "2", "3"]}]
+categorical:
+  site: {levels: [north, "a|b", "*star*", "c,d"]}
+predictors: [site, x]
+models: {approaches: [cumulative], effects: [parallel], links: [logit]}
+rules:
+  - choose: {by: aic}
+inference:
+  marginal_effects: [average, means, profile]
+  profile: {x: 1.5, site: "a|b"}
+  level_pairs: {predictors: [site]}
+`
+	files := renderSource(t, dir, src, 0)
+	md := string(files["report.md"])
+	hasAll(t, "report.md", md,
+		"**Pairs at the means.** For the pair \"a to b\" the difference is the probability of each category predicted for one unit with site at b less that predicted with site at a, every other predictor at its mean over the rows used: x = ",
+		"**Pairs at the plan's profile.**",
+		"those it does not set at their means over the rows used (categorical ones at their reference level): x = 1.5.",
+		"The profile's own level of site (a\\|b) is not used here: each pair sets site to its two levels.",
+		"The pairs from the reference north are the marginal effects of site at the means above",
+		"adjusted for the 6 pairs by Holm's step-down correction (family-wise error rate), within the pairs for one category at the plan's profile",
+		"in the fitted association: it describes units like that point",
+		".** Differences of predicted probabilities at the means between the levels of site\n",
+		".** Differences of predicted probabilities at the plan's profile between the levels of site\n",
+		"effect_at_means, effect_at_profile: the difference",
+		"and by the difference of the probabilities predicted at the two levels with the other predictors held at the means and at the plan's profile",
+		"for one category, averaged or at one point (odds ratios: at one boundary)")
+	if n := strings.Count(md, "in the fitted association: it describes units like that point"); n != 1 {
+		t.Errorf("what a difference at one point means is said %d times, want once", n)
+	}
+	csv := string(files["table-level-pairs-y.csv"])
+	hasAll(t, "table-level-pairs-y.csv", csv,
+		`site,effect_at_means,north to a|b,1,`,
+		`site,effect_at_profile,"*star* to c,d",3,`)
+	if n := strings.Count(csv, "\n"); n != 1+3*18+6 {
+		t.Errorf("table-level-pairs-y.csv has %d lines, want 61", n)
+	}
+	dec := string(files["decisions.json"])
+	hasAll(t, "decisions.json", dec, `"at_points": [`, `"kind": "means"`, `"adjusted_p": [`)
+	if bad, err := jsonkeys.NotSnakeCase(files["decisions.json"], "estimates", "std_errors", "slopes", "final_verdicts", "phi"); err != nil || len(bad) > 0 {
+		t.Errorf("decisions.json keys not in snake_case: %v %v", bad, err)
+	}
+}

@@ -93,6 +93,11 @@ func pooledCells(pp runner.PoolingParam) []string {
 // pointList writes the raw row of marginal effects at one point: each
 // column the predictors read, categorical ones at a level.
 func pointList(or *runner.OutcomeResult, x []float64) string {
+	return strings.Join(pointParts(or, x), ", ")
+}
+
+// pointParts is pointList's "column = value" for each column in order.
+func pointParts(or *runner.OutcomeResult, x []float64) []string {
 	var parts []string
 	names := or.FitData.Predictors
 	var cat []bool
@@ -113,7 +118,7 @@ func pointList(or *runner.OutcomeResult, x []float64) string {
 		}
 		parts = append(parts, fmt.Sprintf("%s = %s", p, numfmt.Num(x[k])))
 	}
-	return strings.Join(parts, ", ")
+	return parts
 }
 
 func weightedNote(or *runner.OutcomeResult, sampling bool) string {

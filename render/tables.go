@@ -5,6 +5,7 @@ import (
 	"encoding/csv"
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -308,6 +309,9 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	}
 	if len(or.LevelPairs) > 0 {
 		about := "comparisons between every pair of levels of the categorical predictors of inference.level_pairs in the chosen model with " + lv + "% intervals: differences of average marginal effects (change a to b: the probability with the predictor at b less that at a, averaged over the rows used) and odds ratios of one level against another (estimate: the ratio; std_error and z: of its log; boundary 0: the same at every boundary); adjusted_p: the p-value adjusted by adjustment within the predictor's pairs for one category or at one boundary"
+		if slices.ContainsFunc(or.LevelPairs, func(set runner.LevelPairSet) bool { return len(set.AtPoints) > 0 }) {
+			about += "; effect_at_means, effect_at_profile: the difference of the probabilities predicted with the predictor at b and at a at one point, the other predictors at the point of the marginal effects at the means or at the plan's profile (table-marginal-effects, column at), p-values adjusted within the pairs for one category at that point"
+		}
 		if or.Imputed != nil {
 			about += "; differences pooled over the imputed sets (t intervals on df; df empty when infinite)"
 		}

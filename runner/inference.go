@@ -81,8 +81,8 @@ func runInference(an *Analysis, or *OutcomeResult) error {
 	for _, kind := range inf.MarginalEffects {
 		or.Marginal = append(or.Marginal, marginalSet(an, or, res, kind))
 	}
-	or.LevelPairs = levelPairSets(an, or, res, func(s int, levels []string) MarginalSet {
-		return pairEffects(or, res, s, levels, an.Level)
+	or.LevelPairs = levelPairSets(an, or, res, func(kind string, s int, levels []string) MarginalSet {
+		return pairSet(an, or, res, kind, s, levels)
 	})
 	if inf.PredictPath != "" {
 		nr, err := readNewRows(an, or)
@@ -107,13 +107,9 @@ func marginalSet(an *Analysis, or *OutcomeResult, res *fit.Result, kind string) 
 	case "average":
 		set.Effects, set.Notes, err = sourceEffects(or, res, or.Data.X, or.Data.N, or.Data.Offset, or.Data.Weights, level)
 	default:
-		raw := or.representative(an.Inference.Profile, kind == "profile")
+		raw, off := or.atPoint(an.Inference.Profile, kind)
 		set.Point = raw
 		set.PointLevels = or.levelsAt(raw)
-		var off []float64
-		if or.Data.Offset != nil {
-			off = []float64{weightedMean(or.Data.Offset, or.Data.Weights)}
-		}
 		set.Effects, set.Notes, err = sourceEffects(or, res, raw, 1, off, nil, level)
 	}
 	if err != nil {
@@ -263,6 +259,18 @@ func (or *OutcomeResult) representative(profile []plan.ProfileValue, withProfile
 		}
 	}
 	return raw
+}
+
+// atPoint is the raw row of marginal effects at one point, kind means or
+// profile (representative), and its offset: the (weighted) mean offset
+// over the rows used, nil without an offset.
+func (or *OutcomeResult) atPoint(profile []plan.ProfileValue, kind string) ([]float64, []float64) {
+	raw := or.representative(profile, kind == "profile")
+	var off []float64
+	if or.Data.Offset != nil {
+		off = []float64{weightedMean(or.Data.Offset, or.Data.Weights)}
+	}
+	return raw, off
 }
 
 // levelsAt names the level of each categorical column of a raw row ("" for

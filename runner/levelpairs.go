@@ -34,6 +34,10 @@ type LevelPairSet struct {
 	// EffectsAdjusted are the p-values of Effects adjusted for
 	// multiplicity within each category's pairs (nil when not adjusted).
 	EffectsAdjusted []float64 `json:"average_marginal_effects_adjusted_p,omitempty"`
+	// AtPoints are the same differences at one point, for each kind of
+	// marginal effects at a point the plan asks for (means, profile; in the
+	// order of inference.marginal_effects; none otherwise).
+	AtPoints []PairsAtPoint `json:"at_points,omitempty"`
 	// OddsRatios are exp of the difference of the two levels' log odds
 	// (logit link; empty otherwise), change "b against a".
 	OddsRatios []PairOddsRatio `json:"odds_ratios,omitempty"`
@@ -47,6 +51,20 @@ type LevelPairSet struct {
 	// Note says why no pair was computed (fewer than three levels kept,
 	// no term of its own).
 	Note string `json:"note,omitempty"`
+}
+
+// PairsAtPoint is the differences between every pair of levels of one
+// categorical predictor at one point: the probability of each category
+// with the predictor at b less that with it at a, the other predictors at
+// the point of the marginal effects of the same kind (Effects.Kind: means,
+// profile; Effects.Point and PointLevels, where the paired column's own
+// entry is replaced by each level in turn). On imputed data pooled over
+// the sets, each set at its own point, as those marginal effects are.
+type PairsAtPoint struct {
+	Effects MarginalSet `json:"effects"`
+	// Adjusted are the p-values of Effects adjusted for multiplicity
+	// within each category's pairs at this point (nil when not adjusted).
+	Adjusted []float64 `json:"adjusted_p,omitempty"`
 }
 
 // PairOddsRatio is the odds ratio of one level against another.
@@ -78,9 +96,10 @@ func pairLevels(dz *design.Design, s int) ([]string, string) {
 
 // levelPairSets compares the levels of every column of the plan's
 // inference.level_pairs in fit res (the chosen model; on imputed data the
-// pooled fit), the average marginal effects by effects (one data set's, or
-// those pooled over the sets).
-func levelPairSets(an *Analysis, or *OutcomeResult, res *fit.Result, effects func(s int, levels []string) MarginalSet) []LevelPairSet {
+// pooled fit), the differences of probabilities of each kind (average,
+// and means and profile when the plan's marginal_effects ask for them) by
+// effects (one data set's, or those pooled over the sets).
+func levelPairSets(an *Analysis, or *OutcomeResult, res *fit.Result, effects func(kind string, s int, levels []string) MarginalSet) []LevelPairSet {
 	lp := an.Inference.LevelPairs
 	if lp == nil || or.Design == nil {
 		return nil
@@ -99,11 +118,14 @@ func levelPairSets(an *Analysis, or *OutcomeResult, res *fit.Result, effects fun
 		}
 		k := len(set.Levels)
 		set.Family = k * (k - 1) / 2
-		set.Effects = effects(s, set.Levels)
-		if set.Effects.Error == "" && lp.Multiplicity != plan.MultiplicityNone {
-			set.EffectsAdjusted = adjustFamilies(lp.Multiplicity, len(set.Effects.Effects),
-				func(e int) string { return set.Effects.Effects[e].Category },
-				func(e int) float64 { return set.Effects.Effects[e].P })
+		set.Effects = effects("average", s, set.Levels)
+		set.EffectsAdjusted = adjustPairs(lp.Multiplicity, set.Effects)
+		for _, kind := range an.Inference.MarginalEffects {
+			if kind != "average" {
+				pt := PairsAtPoint{Effects: effects(kind, s, set.Levels)}
+				pt.Adjusted = adjustPairs(lp.Multiplicity, pt.Effects)
+				set.AtPoints = append(set.AtPoints, pt)
+			}
 		}
 		if res.Model.Link == fit.Logit {
 			set.OddsRatios, set.OddsRatioNote = pairOddsRatios(or, res, s, set.Levels, an.Level)
@@ -121,6 +143,33 @@ func levelPairSets(an *Analysis, or *OutcomeResult, res *fit.Result, effects fun
 	return out
 }
 
+// adjustPairs adjusts the p-values of differences between pairs of levels
+// by method within each category's pairs (nil for none, or when the
+// differences were not computed).
+func adjustPairs(method string, set MarginalSet) []float64 {
+	if set.Error != "" || method == plan.MultiplicityNone {
+		return nil
+	}
+	return adjustFamilies(method, len(set.Effects),
+		func(e int) string { return set.Effects[e].Category },
+		func(e int) float64 { return set.Effects[e].P })
+}
+
+// pairSet is the differences between every pair of levels of categorical
+// source s of one kind by fit res on the outcome's data: averaged over the
+// rows used (average), or at the point of the marginal effects of that
+// kind (means, profile), the paired column set to each level there.
+func pairSet(an *Analysis, or *OutcomeResult, res *fit.Result, kind string, s int, levels []string) MarginalSet {
+	d := or.Data
+	if kind == "average" {
+		return pairEffects(or, res, s, levels, d.X, d.N, d.Offset, d.Weights, an.Level)
+	}
+	raw, off := or.atPoint(an.Inference.Profile, kind)
+	set := pairEffects(or, res, s, levels, raw, 1, off, nil, an.Level)
+	set.Kind, set.Point, set.PointLevels = kind, raw, or.levelsAt(raw)
+	return set
+}
+
 // pairsOf lists the pairs (a, b) of n levels, a before b, in order.
 func pairsOf(n int) [][2]int {
 	var out [][2]int
@@ -133,14 +182,15 @@ func pairsOf(n int) [][2]int {
 }
 
 // pairEffects is the differences of average marginal effects of every pair
-// of levels of categorical source s over the outcome's rows, by fit res:
-// each pair (a, b) as fit.AverageDifference from the rows with the column
-// at a to the rows with it at b gives it (fit.AverageDifferences, each
-// row's probabilities computed once per level), so the delta method runs
-// on the whole covariance of the model.
-func pairEffects(or *OutcomeResult, res *fit.Result, s int, levels []string, level float64) MarginalSet {
+// of levels of categorical source s over the n raw rows given (n x S, with
+// their offsets and weights: the outcome's rows, or one point), by fit
+// res: each pair (a, b) as fit.AverageDifference from the rows with the
+// column at a to the rows with it at b gives it (fit.AverageDifferences,
+// each row's probabilities computed once per level), so the delta method
+// runs on the whole covariance of the model.
+func pairEffects(or *OutcomeResult, res *fit.Result, s int, levels []string, X []float64, n int, off, w []float64, level float64) MarginalSet {
 	set := MarginalSet{Kind: "level_pairs"}
-	dz, d := or.Design, or.Data
+	dz := or.Design
 	S := len(dz.Sources)
 	at := make([]float64, len(levels))
 	for v, l := range levels {
@@ -148,11 +198,11 @@ func pairEffects(or *OutcomeResult, res *fit.Result, s int, levels []string, lev
 	}
 	pairs := pairsOf(len(levels))
 	raw := make([]float64, S)
-	effs, err := res.AverageDifferences(dz.Sources[s].Name, len(levels), d.N, func(v, i int, x []float64) error {
-		copy(raw, d.X[i*S:(i+1)*S])
+	effs, err := res.AverageDifferences(dz.Sources[s].Name, len(levels), n, func(v, i int, x []float64) error {
+		copy(raw, X[i*S:(i+1)*S])
 		raw[s] = at[v]
 		return dz.Row(raw, x)
-	}, pairs, d.Offset, d.Weights, level)
+	}, pairs, off, w, level)
 	if err != nil {
 		set.Error = err.Error()
 		return set

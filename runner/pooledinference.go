@@ -66,8 +66,9 @@ func (or *OutcomeResult) chosenPerSet() ([]*fit.Result, error) {
 }
 
 // runPooledInference computes the marginal effects, the differences of
-// average marginal effects between pairs of levels and the predictions
-// for new rows the plan asks for on every imputed set and pools them.
+// probabilities between pairs of levels (averaged, and at the points of
+// the marginal effects) and the predictions for new rows the plan asks for
+// on every imputed set and pools them.
 func runPooledInference(an *Analysis, or *OutcomeResult) error {
 	if or.Chosen == nil {
 		return nil
@@ -89,13 +90,16 @@ func runPooledInference(an *Analysis, or *OutcomeResult) error {
 		}
 		or.Marginal = append(or.Marginal, poolMarginal(sets, dfc, an.Level))
 	}
-	or.LevelPairs = levelPairSets(an, or, or.Chosen.Result, func(s int, levels []string) MarginalSet {
+	or.LevelPairs = levelPairSets(an, or, or.Chosen.Result, func(kind string, s int, levels []string) MarginalSet {
 		if ferr != nil {
-			return MarginalSet{Kind: "level_pairs", Error: ferr.Error()}
+			if kind == "average" {
+				kind = "level_pairs"
+			}
+			return MarginalSet{Kind: kind, Error: ferr.Error()}
 		}
 		sets := make([]MarginalSet, len(fits))
 		for k, r := range fits {
-			sets[k] = pairEffects(or.onSet(k), r, s, levels, an.Level)
+			sets[k] = pairSet(an, or.onSet(k), r, kind, s, levels)
 		}
 		return poolMarginal(sets, dfc, an.Level)
 	})
