@@ -131,11 +131,7 @@ func writePairsAtPoints(d *doc, r *runner.Result, or *runner.OutcomeResult, set 
 		}
 		overridden := ""
 		if me.Kind == "profile" && r.Analysis != nil {
-			for _, v := range r.Analysis.Inference.Profile {
-				if v.Predictor == set.Predictor && v.Level != "" {
-					overridden = fmt.Sprintf(" The profile's own level of %s (%s) is not used here: each pair sets %s to its two levels.", name, mdText(v.Level), name)
-				}
-			}
+			overridden = profileLevels(r.Analysis.Inference.Profile, or, s)
 		}
 		pooled := ""
 		if me.Pooling != nil {
@@ -149,6 +145,32 @@ func writePairsAtPoints(d *doc, r *runner.Result, or *runner.OutcomeResult, set 
 		}
 		d.captioned("Differences of predicted probabilities " + at + " between the levels of " + name).table(pairTable(me, pt.Adjusted, set.Multiplicity, level))
 	}
+}
+
+// profileLevels says, for pairs of levels of source s at the plan's
+// profile, that the profile's own level of s is not used, and which other
+// categorical predictors the profile gives no level (held at their
+// reference level); "" when neither.
+func profileLevels(profile []plan.ProfileValue, or *runner.OutcomeResult, s int) string {
+	if or.Design == nil || s < 0 {
+		return ""
+	}
+	out := ""
+	var unstated []string
+	for k, src := range or.Design.Sources {
+		i := slices.IndexFunc(profile, func(v plan.ProfileValue) bool { return v.Predictor == src.Name })
+		switch {
+		case k == s && i >= 0:
+			name := mdText(src.Name)
+			out += fmt.Sprintf(" The profile's own level of %s (%s) is not used here: each pair sets %s to its two levels.", name, mdText(profile[i].Level), name)
+		case k != s && i < 0 && src.Cat != nil:
+			unstated = append(unstated, mdText(src.Name))
+		}
+	}
+	if len(unstated) > 0 {
+		out += fmt.Sprintf(" The profile gives no level of %s: each is held at its reference level (as listed), and the differences can be different at its other levels.", strings.Join(unstated, ", "))
+	}
+	return out
 }
 
 // others reports whether the predictors read other categorical columns
@@ -224,35 +246,28 @@ func writePairOddsRatios(d *doc, or *runner.OutcomeResult, set runner.LevelPairS
 }
 
 // levelPairsCSV is the rows of table-level-pairs-OUTCOME.csv: every
-// difference of average marginal effects and every odds ratio of a pair of
-// levels.
+// difference of average marginal effects, every difference at a point
+// (means, profile) and every odds ratio of a pair of levels.
 func levelPairsCSV(or *runner.OutcomeResult) [][]string {
 	var rows [][]string
 	pooled := or.Imputed != nil
 	for _, set := range or.LevelPairs {
-		for e, x := range set.Effects.Effects {
-			adj := ""
-			if set.EffectsAdjusted != nil {
-				adj = csvNum(set.EffectsAdjusted[e])
-			}
-			df := ""
-			if pooled && e < len(set.Effects.Pooling) && set.Effects.Pooling[e].DF != nil {
-				df = csvNum(*set.Effects.Pooling[e].DF)
-			}
-			rows = append(rows, []string{set.Predictor, "average_marginal_effect", x.Change, x.Category, "", csvNum(x.Effect), csvNum(x.SE), csvNum(x.Z), csvNum(x.P), adj, set.Multiplicity, csvNum(x.Low), csvNum(x.High), df})
-		}
-		for _, pt := range set.AtPoints {
-			for e, x := range pt.Effects.Effects {
+		differences := func(kind string, me runner.MarginalSet, adjusted []float64) {
+			for e, x := range me.Effects {
 				adj := ""
-				if pt.Adjusted != nil {
-					adj = csvNum(pt.Adjusted[e])
+				if adjusted != nil {
+					adj = csvNum(adjusted[e])
 				}
 				df := ""
-				if pooled && e < len(pt.Effects.Pooling) && pt.Effects.Pooling[e].DF != nil {
-					df = csvNum(*pt.Effects.Pooling[e].DF)
+				if pooled && e < len(me.Pooling) && me.Pooling[e].DF != nil {
+					df = csvNum(*me.Pooling[e].DF)
 				}
-				rows = append(rows, []string{set.Predictor, "effect_at_" + pt.Effects.Kind, x.Change, x.Category, "", csvNum(x.Effect), csvNum(x.SE), csvNum(x.Z), csvNum(x.P), adj, set.Multiplicity, csvNum(x.Low), csvNum(x.High), df})
+				rows = append(rows, []string{set.Predictor, kind, x.Change, x.Category, "", csvNum(x.Effect), csvNum(x.SE), csvNum(x.Z), csvNum(x.P), adj, set.Multiplicity, csvNum(x.Low), csvNum(x.High), df})
 			}
+		}
+		differences("average_marginal_effect", set.Effects, set.EffectsAdjusted)
+		for _, pt := range set.AtPoints {
+			differences("effect_at_"+pt.Effects.Kind, pt.Effects, pt.Adjusted)
 		}
 		for _, o := range set.OddsRatios {
 			adj := ""

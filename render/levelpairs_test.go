@@ -40,16 +40,15 @@ func levelPairsData() string {
 	return b.String()
 }
 
-// The report of inference.level_pairs: its section with both tables and
-// the adjusted p-values, the methods sentence, table-level-pairs-*.csv,
-// decisions.json's snake_case keys, level names shown as written, and the
-// same bytes from a second run.
-func TestLevelPairsReport(t *testing.T) {
+// levelPairsPlan writes levelPairsData to d.csv in a new folder and returns
+// it with a plan of y on site and x whose inference section is inference
+// (indented lines).
+func levelPairsPlan(t *testing.T, inference string) (string, string) {
 	dir := t.TempDir()
 	if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(levelPairsData()), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	src := `version: 1
+	return dir, `version: 1
 title: pairs
 data: {file: d.csv}
 outcomes: [{column: y, categories: ["1", "2", "3"]}]
@@ -60,8 +59,15 @@ models: {approaches: [cumulative], effects: [parallel], links: [logit]}
 rules:
   - choose: {by: aic}
 inference:
-  level_pairs: {predictors: [site], multiplicity: benjamini_hochberg}
-`
+` + inference
+}
+
+// The report of inference.level_pairs: its section with both tables and
+// the adjusted p-values, the methods sentence, table-level-pairs-*.csv,
+// decisions.json's snake_case keys, level names shown as written, and the
+// same bytes from a second run.
+func TestLevelPairsReport(t *testing.T) {
+	dir, src := levelPairsPlan(t, "  level_pairs: {predictors: [site], multiplicity: benjamini_hochberg}\n")
 	files := renderSource(t, dir, src, 0)
 	md := string(files["report.md"])
 	hasAll(t, "report.md", md,
@@ -100,25 +106,7 @@ inference:
 // table-level-pairs-*.csv of kinds effect_at_means and effect_at_profile;
 // decisions.json's at_points.
 func TestLevelPairsAtPointsReport(t *testing.T) {
-	dir := t.TempDir()
-	if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(levelPairsData()), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	src := `version: 1
-title: pairs
-data: {file: d.csv}
-outcomes: [{column: y, categories: ["1", "2", "3"]}]
-categorical:
-  site: {levels: [north, "a|b", "*star*", "c,d"]}
-predictors: [site, x]
-models: {approaches: [cumulative], effects: [parallel], links: [logit]}
-rules:
-  - choose: {by: aic}
-inference:
-  marginal_effects: [average, means, profile]
-  profile: {x: 1.5, site: "a|b"}
-  level_pairs: {predictors: [site]}
-`
+	dir, src := levelPairsPlan(t, "  marginal_effects: [average, means, profile]\n  profile: {x: 1.5, site: \"a|b\"}\n  level_pairs: {predictors: [site]}\n")
 	files := renderSource(t, dir, src, 0)
 	md := string(files["report.md"])
 	hasAll(t, "report.md", md,

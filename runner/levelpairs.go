@@ -288,3 +288,39 @@ func atValue(dz *design.Design, raw []float64, n, s int, v float64) ([]float64, 
 	}
 	return X, nil
 }
+
+// PairsProfileWarnings are the warnings check and run print when the plan
+// asks for pairs of levels at its profile (inference.level_pairs with
+// marginal_effects: profile) and the profile gives no level of another
+// categorical predictor: the pairs are then taken at that column's
+// reference level, as the marginal effects at the profile are, a level the
+// plan does not state (not refused: the default is documented); none
+// otherwise.
+func PairsProfileWarnings(p *plan.Plan) []string {
+	inf := p.Inference
+	if inf.LevelPairs == nil || !slices.Contains(inf.MarginalEffects, "profile") {
+		return nil
+	}
+	var out []string
+	for _, col := range p.SourceColumns() {
+		c := p.CategoricalOf(col)
+		if c == nil || slices.ContainsFunc(inf.Profile, func(v plan.ProfileValue) bool { return v.Predictor == col }) {
+			continue
+		}
+		var paired []string
+		for _, x := range inf.LevelPairs.Predictors {
+			if x != col {
+				paired = append(paired, x)
+			}
+		}
+		if len(paired) == 0 {
+			continue
+		}
+		ref := c.Reference
+		if ref == "" && len(c.Levels) > 0 {
+			ref = c.Levels[0]
+		}
+		out = append(out, fmt.Sprintf("inference.profile gives no level of %s, a categorical predictor: the pairs of levels of %s at the profile (inference.level_pairs) hold it at its reference level %s, as the marginal effects at the profile do (they can differ at its other levels); give %s the level meant in inference.profile", col, strings.Join(paired, " and "), ref, col))
+	}
+	return out
+}

@@ -34,17 +34,40 @@ func housingRows(t *testing.T) [][]string {
 
 // housingTwoCategories writes the housing data with satisfaction collapsed
 // to two categories: y = 1 for high satisfaction (sat 3), 0 otherwise.
-func housingTwoCategories(t *testing.T) string {
+func housingTwoCategories(t *testing.T) string { return housingBinary(t, nil) }
+
+// housingBinary writes the housing data with satisfaction collapsed to two
+// categories (y = 1 for high satisfaction, sat 3), infl's levels replaced
+// by score (nil: kept as written).
+func housingBinary(t *testing.T, score map[string]string) string {
 	var b strings.Builder
 	b.WriteString("y,infl,type,cont,freq\n")
 	for _, r := range housingRows(t) {
-		y := "0"
+		y, infl := "0", r[1]
 		if r[0] == "3" {
 			y = "1"
 		}
-		fmt.Fprintf(&b, "%s,%s,%s,%s,%s\n", y, r[1], r[2], r[3], r[4])
+		if score != nil {
+			infl = score[infl]
+		}
+		fmt.Fprintf(&b, "%s,%s,%s,%s,%s\n", y, infl, r[2], r[3], r[4])
 	}
 	return b.String()
+}
+
+// agreeWithR returns a check that a value agrees with R's to tol relative
+// (to the larger of |R's value| and scale), and the largest relative
+// difference it has seen.
+func agreeWithR(t *testing.T, tol float64) (func(what string, got, want, scale float64), *float64) {
+	worst := new(float64)
+	return func(what string, got, want, scale float64) {
+		t.Helper()
+		d := math.Abs(got-want) / math.Max(math.Abs(want), scale)
+		*worst = math.Max(*worst, d)
+		if !(d <= tol) {
+			t.Errorf("%s: got %.12g, R %.12g", what, got, want)
+		}
+	}, worst
 }
 
 const levelPairsHousing = `version: 1
@@ -75,27 +98,19 @@ inference:
 // b less that with it set to a; R computes its delta-method standard error
 // with a numerical gradient of that function of glm's coefficients and
 // vcov, and the log odds ratio of b against a and its error from the
-// coefficients and vcov (testdata/rcheck/levelpairs.R). Measured agreement
+// coefficients and vcov (testdata/rcheck/housingglm.R, then levelpairs.R). Measured agreement
 // is logged; the limit is 1e-6 relative.
 func TestLevelPairsAgainstGlm(t *testing.T) {
 	rscript.Require(t)
 	p := writePlan(t, fmt.Sprintf(levelPairsHousing, "y", `["0", "1"]`, "coding: treatment", "effects: [parallel]"), map[string]string{"d.csv": housingTwoCategories(t)})
 	res := runPlan(t, p, 0)
 	or := res.Outcomes[0]
-	vals := rscript.Run(t, filepath.Dir(p.Path), "testdata/rcheck/levelpairs.R")
+	vals := rscript.Run(t, filepath.Dir(p.Path), "testdata/rcheck/housingglm.R", "testdata/rcheck/levelpairs.R")
 	set := or.LevelPairs[0]
 	if set.Predictor != "type" || set.Note != "" || set.Effects.Error != "" {
 		t.Fatalf("pairs of type: %+v", set)
 	}
-	worst := 0.0
-	near := func(what string, got, want, scale float64) {
-		t.Helper()
-		d := math.Abs(got-want) / math.Max(math.Abs(want), scale)
-		worst = math.Max(worst, d)
-		if !(d <= 1e-6) {
-			t.Errorf("%s: got %.12g, R %.12g", what, got, want)
-		}
-	}
+	near, worst := agreeWithR(t, 1e-6)
 	seen := 0
 	for _, e := range set.Effects.Effects {
 		if e.Category != "1" {
@@ -117,24 +132,7 @@ func TestLevelPairsAgainstGlm(t *testing.T) {
 	if seen != 12 {
 		t.Errorf("%d pairs compared, want 6 effects and 6 odds ratios", seen)
 	}
-	t.Logf("largest relative difference from R: %.2g", worst)
-}
-
-// housingScored writes the housing data with satisfaction collapsed to two
-// categories (y = 1 for high satisfaction, sat 3) and infl read as the
-// numeric score 1, 2, 3 of low, medium, high.
-func housingScored(t *testing.T) string {
-	score := map[string]string{"low": "1", "medium": "2", "high": "3"}
-	var b strings.Builder
-	b.WriteString("y,infl,type,cont,freq\n")
-	for _, r := range housingRows(t) {
-		y := "0"
-		if r[0] == "3" {
-			y = "1"
-		}
-		fmt.Fprintf(&b, "%s,%s,%s,%s,%s\n", y, score[r[1]], r[2], r[3], r[4])
-	}
-	return b.String()
+	t.Logf("largest relative difference from R: %.2g", *worst)
 }
 
 const levelPairsAtPoints = `version: 1
@@ -159,36 +157,29 @@ inference:
 
 // TestLevelPairsAtPointsAgainstGlm checks the pairs of levels at the means
 // and at a profile against base R's glm: with two categories the
-// cumulative logit model is logistic regression, so on the housing data
+// cumulative logit model is logistic regression, so on the published
+// housing data (Madsen 1976, testdata/reference/housing_factors.csv)
 // collapsed to high satisfaction against the rest (infl as its score 1, 2,
 // 3; type: 4 levels; cont: 2; frequency weights) the difference of a pair
 // (a, b) of type's levels at a point, for category 1, is exactly
 // plogis(x_b'beta) - plogis(x_a'beta) from glm's coefficients, x_l the
 // model row at the point with type at l; R computes its delta-method
 // standard error from the gradient written out and glm's vcov
-// (testdata/rcheck/levelpairspoints.R). The means point has infl at its
+// (testdata/rcheck/housingglm.R, then levelpairspoints.R). The means point has infl at its
 // weighted mean (checked against R's weighted.mean) and cont at its
 // reference level; the profile's own level of type (atrium) is replaced by
 // each level of the pair. Category 0 is the negative of category 1, with
 // the same error. Measured agreement is logged; the limit is 1e-5 relative.
 func TestLevelPairsAtPointsAgainstGlm(t *testing.T) {
 	rscript.Require(t)
-	p := writePlan(t, levelPairsAtPoints, map[string]string{"d.csv": housingScored(t)})
+	p := writePlan(t, levelPairsAtPoints, map[string]string{"d.csv": housingBinary(t, map[string]string{"low": "1", "medium": "2", "high": "3"})})
 	or := runPlan(t, p, 0).Outcomes[0]
-	vals := rscript.Run(t, filepath.Dir(p.Path), "testdata/rcheck/levelpairspoints.R")
+	vals := rscript.Run(t, filepath.Dir(p.Path), "testdata/rcheck/housingglm.R", "testdata/rcheck/levelpairspoints.R")
 	set := or.LevelPairs[0]
 	if set.Predictor != "type" || set.Note != "" || len(set.AtPoints) != 2 {
 		t.Fatalf("pairs of type: %+v", set)
 	}
-	worst := 0.0
-	near := func(what string, got, want, scale float64) {
-		t.Helper()
-		d := math.Abs(got-want) / math.Max(math.Abs(want), scale)
-		worst = math.Max(worst, d)
-		if !(d <= 1e-5) {
-			t.Errorf("%s: got %.12g, R %.12g", what, got, want)
-		}
-	}
+	near, worst := agreeWithR(t, 1e-5)
 	for i, kind := range []string{"means", "profile"} {
 		pt := set.AtPoints[i].Effects
 		if pt.Kind != kind || pt.Error != "" || len(pt.Effects) != 12 {
@@ -213,7 +204,7 @@ func TestLevelPairsAtPointsAgainstGlm(t *testing.T) {
 			near(kind+" "+e.Change+" "+e.Category+" se", e.SE, r[1], 0)
 		}
 	}
-	t.Logf("largest relative difference from R: %.2g", worst)
+	t.Logf("largest relative difference from R: %.2g", *worst)
 }
 
 // TestLevelPairsIdentities checks the pairs of levels on the housing data

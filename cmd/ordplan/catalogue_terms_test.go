@@ -286,6 +286,36 @@ func termItems(dir string) []badInput {
 					t.Errorf("decisions.json does not list the rows outside (%v)", err)
 				}
 			}},
+		{id: "T26", name: "pairs of levels at a profile that gives no level of another categorical predictor (warned, held at its reference level)", args: []string{"run"}, setup: writeCellsData,
+			plan: termsEdit("cat.csv", "cells.csv", "south]}\n", "south]}\n  grade: {levels: [lo, hi]}\n", "[site, x]", "[site, grade, x]", "rules:", "inference: {marginal_effects: [profile], profile: {x: 3}, level_pairs: {predictors: [site]}}\nrules:"), code: 0,
+			want: []string{"y: chosen: cumulative/parallel/logit"},
+			check: func(t *testing.T, dir, out, errs string) {
+				if want := "warning: " + filepath.Join(dir, "T26.yaml") + `: inference.profile gives no level of grade, a categorical predictor: the pairs of levels of site at the profile (inference.level_pairs) hold it at its reference level lo, as the marginal effects at the profile do (they can differ at its other levels); give grade the level meant in inference.profile` + "\n"; !strings.Contains(errs, want) {
+					t.Errorf("run does not warn of the level the profile leaves unstated; got\n%s\nwant %s", errs, want)
+				}
+				if _, e, code := runCLI("check", "--no-data", filepath.Join(dir, "T26.yaml")); code != 0 || !strings.Contains(e, "inference.profile gives no level of grade") {
+					t.Errorf("check: exit %d, no warning:\n%s", code, e)
+				}
+				b, err := os.ReadFile(filepath.Join(dir, "T26-out", "report.md"))
+				for _, want := range []string{"(categorical ones at their reference level): grade = lo, x = 3.", "The profile gives no level of grade: each is held at its reference level (as listed), and the differences can be different at its other levels."} {
+					if err != nil || !strings.Contains(string(b), want) {
+						t.Errorf("report.md does not say where the pairs at the profile hold grade (%v); want %q", err, want)
+					}
+				}
+			}},
+		{id: "T27", name: "pairs of levels at a profile that gives the paired column a level (not used: each pair sets its two levels)", args: []string{"run"}, setup: writeTermsData,
+			plan: termsEdit("rules:", "inference: {marginal_effects: [profile], profile: {site: east, x: 2}, level_pairs: {predictors: [site]}}\nrules:"), code: 0,
+			want: []string{"y: chosen: cumulative/parallel/logit"},
+			check: func(t *testing.T, dir, out, errs string) {
+				if strings.Contains(errs, "warning") {
+					t.Errorf("a warning where the profile states every column:\n%s", errs)
+				}
+				b, err := os.ReadFile(filepath.Join(dir, "T27-out", "report.md"))
+				want := "The profile's own level of site (east) is not used here: each pair sets site to its two levels."
+				if err != nil || !strings.Contains(string(b), want) || !strings.Contains(string(b), "(categorical ones at their reference level): x = 2.") {
+					t.Errorf("report.md does not say the profile's level of site is not used (%v); want %q", err, want)
+				}
+			}},
 		{id: "T14", name: "a subset that leaves out a declared level", args: []string{"check", "--no-data"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: site, none_of: [south]}\npredictors:"), code: 1,
 			want: []string{`T14.yaml:7:5: subset[0]: leaves out the rows of level "south" of site, which categorical.site declares: no row used has it, so its column cannot be estimated; remove the level from categorical.site.levels (rows outside the subset may keep it) or set categorical.site.unobserved: drop` + "\n"}},

@@ -257,14 +257,19 @@ func warnUnedited(p *plan.Plan, stderr io.Writer) {
 
 // warnPlan prints, on stderr, each rule or stepwise selection of p that
 // reads a statistic ignoring the clusters of clustered errors
-// (runner.ClusterWarnings) and each two-category outcome whose grid and
-// tests are made for several boundaries (runner.BinaryWarnings); the
-// command goes on.
+// (runner.ClusterWarnings), each two-category outcome whose grid and
+// tests are made for several boundaries (runner.BinaryWarnings) and each
+// categorical predictor held at its reference level in pairs of levels at
+// the profile because the profile gives it no level
+// (runner.PairsProfileWarnings); the command goes on.
 func warnPlan(p *plan.Plan, stderr io.Writer) {
 	for _, w := range runner.ClusterWarnings(p) {
 		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
 	}
 	for _, w := range runner.BinaryWarnings(p, nil) {
+		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
+	}
+	for _, w := range runner.PairsProfileWarnings(p) {
 		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
 	}
 }

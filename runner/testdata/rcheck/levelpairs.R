@@ -1,7 +1,6 @@
-# Pairs of levels of the categorical predictor type in a binary logistic
-# regression (base R glm) of y on infl, type and cont with frequency weights
-# freq (d.csv). For each pair (a, b) of type's levels, a before b in
-# tower, apartment, atrium, terrace:
+# Pairs of levels of the categorical predictor type in the binary logistic
+# regression of housingglm.R (run first; infl a factor). For each pair
+# (a, b) of type's levels, a before b in tower, apartment, atrium, terrace:
 #   - the difference of average predicted probabilities of y = 1: every
 #     row's type set to b, then to a, the fitted probabilities averaged
 #     with weights freq; its standard error by the delta method, the
@@ -9,17 +8,6 @@
 #   - the log odds ratio of b against a (the difference of the two levels'
 #     coefficients) and its standard error from vcov.
 # Prints "pair_a_b est se logor logorse" with 17 significant digits.
-out <- function(name, v) cat(name, sprintf("%.17g", as.numeric(v)), "\n")
-ctl <- glm.control(epsilon = 1e-14, maxit = 100)
-d <- read.csv("d.csv", stringsAsFactors = FALSE)
-lv <- c("tower", "apartment", "atrium", "terrace")
-d$infl <- factor(d$infl, levels = c("low", "medium", "high"))
-d$type <- factor(d$type, levels = lv)
-d$cont <- factor(d$cont, levels = c("low", "high"))
-f <- glm(y ~ infl + type + cont, family = binomial, weights = freq, data = d, control = ctl)
-for (k in 1:5) f <- glm(y ~ infl + type + cont, family = binomial, weights = freq, data = d, control = ctl, start = coef(f))
-b <- coef(f)
-V <- vcov(f)
 design <- function(level) {
   nd <- d
   nd$type <- factor(rep(level, nrow(d)), levels = lv)

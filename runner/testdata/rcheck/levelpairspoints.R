@@ -1,24 +1,13 @@
-# Pairs of levels of the categorical predictor type at one point in a binary
-# logistic regression (base R glm) of y on the numeric score infl (1, 2, 3)
-# and the factors type and cont, with frequency weights freq (d.csv). Two
-# points: "means" (infl at its weighted mean, cont at its first level low)
-# and "profile" (infl 2.5, cont high). For each pair (a, b) of type's
+# Pairs of levels of the categorical predictor type at one point in the
+# binary logistic regression of housingglm.R (run first; infl the numeric
+# score 1, 2, 3). Two points: "means" (infl at its weighted mean, cont at
+# its first level low) and "profile" (infl 2.5, cont high). For each pair (a, b) of type's
 # levels, a before b in tower, apartment, atrium, terrace, the difference
 # p_b - p_a of the fitted probabilities of y = 1 at the point with type at
 # b and at a, p = plogis(x'beta); its standard error by the delta method
 # written out: the gradient p_b (1 - p_b) x_b - p_a (1 - p_a) x_a, with
 # vcov. Prints "means_a_b est se" and "profile_a_b est se" with 17
 # significant digits, and "mean_infl" (the point's infl).
-out <- function(name, v) cat(name, sprintf("%.17g", as.numeric(v)), "\n")
-ctl <- glm.control(epsilon = 1e-14, maxit = 100)
-d <- read.csv("d.csv", stringsAsFactors = FALSE)
-lv <- c("tower", "apartment", "atrium", "terrace")
-d$type <- factor(d$type, levels = lv)
-d$cont <- factor(d$cont, levels = c("low", "high"))
-f <- glm(y ~ infl + type + cont, family = binomial, weights = freq, data = d, control = ctl)
-for (k in 1:5) f <- glm(y ~ infl + type + cont, family = binomial, weights = freq, data = d, control = ctl, start = coef(f))
-b <- coef(f)
-V <- vcov(f)
 row <- function(infl, type, cont) {
   nd <- data.frame(infl = infl, type = factor(type, levels = lv), cont = factor(cont, levels = c("low", "high")))
   drop(model.matrix(~ infl + type + cont, nd))
