@@ -135,11 +135,18 @@ func writePairsAtPoints(d *doc, r *runner.Result, or *runner.OutcomeResult, set 
 		}
 		pooled := ""
 		if me.Pooling != nil {
-			pooled = fmt.Sprintf(" On imputed data each difference was computed on each of the %d imputed sets (that set's fit, at that set's own means) and pooled by Rubin's rules, as the marginal effects %s are: p-values and intervals use t on the Barnard-Rubin degrees of freedom (df; inf when the sets agree), and FMI is the fraction of missing information; the point shown is the mean of the sets' points.", or.Imputed.M, at)
+			own := "at that set's own means"
+			if me.Kind == "profile" {
+				own = "the predictors the profile does not set at that set's own means"
+			}
+			pooled = fmt.Sprintf(" On imputed data each difference was computed on each of the %d imputed sets (that set's fit, %s) and pooled by Rubin's rules, as the marginal effects %s are: p-values and intervals use t on the Barnard-Rubin degrees of freedom (df; inf when the sets agree), and FMI is the fraction of missing information; the point shown is the mean of the sets' points.", or.Imputed.M, own, at)
 		}
 		d.p("**Pairs %s.** For the pair \"a to b\" the difference is the probability of each category predicted for one unit with %s at b less that predicted with %s at a, %s: %s. The pairs from the reference %s are the marginal effects of %s %s above; a pair of two other levels is the difference of their effects against the reference at this point. Standard errors by the delta method on the whole covariance of the model's parameters; intervals at %s, symmetric about the difference.%s%s %s",
 			at, name, name, held, pointExcept(or, me.Point, s), mdText(set.Levels[0]), name, at, pct(level), overridden, pooled,
 			pairFamilyText(set, "the pairs for one category "+at))
+		if me.Kind == "means" && r.Analysis != nil && r.Analysis.Errors.Sampling {
+			d.p("%s", samplingMeansNote)
+		}
 		if k == 0 {
 			d.p("A difference at one point compares two groups that share that one covariate profile, in the fitted association: it describes units like that point, not the rows used on average (the average differences above can differ from it in size, even in sign), and it does not say what moving a unit from one level to the other would change.")
 		}
