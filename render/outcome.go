@@ -130,9 +130,11 @@ func writeFreeSets(d *doc, or *runner.OutcomeResult) {
 			d.p("On imputed data every model of the selection was fitted on each of the %d imputed sets and pooled by Rubin's rules, and each step reads pooled tests (Wald tests by D1, likelihood-ratio tests by D3; F tests shown with their F p-values); the log-likelihood is the mean over the sets. One partial set is selected for all imputed sets.", or.Imputed.M)
 		}
 		var rows [][]string
+		var warned poolingWarnings
 		for _, st := range s.Result.Steps {
 			var parts []string
 			for _, t := range st.Tests {
+				warned.add(fmt.Sprintf("step %d, test of %s", st.Step, t.Name), t)
 				if !t.OK {
 					// Never read as a statistic: the step passed over it.
 					parts = append(parts, fmt.Sprintf("%s not computed (%s)", t.Name, mdText(t.Reason)))
@@ -147,6 +149,7 @@ func writeFreeSets(d *doc, or *runner.OutcomeResult) {
 			rows = append(rows, []string{fmt.Sprint(st.Step), numfmt.Fixed(st.LogLik, 3), strings.Join(parts, "; "), imposed})
 		}
 		d.captioned(fmt.Sprintf("Stepwise selection of the partial set, %s %s", s.Approach, s.Link)).table([]string{"Step", "Log-likelihood", "Tests of equal slopes", "Made parallel"}, rows)
+		warned.write(d)
 		if t := s.Result.FinalTest; t.OK {
 			d.p("Joint test that every predictor made parallel has equal slopes: %s, %s.", runner.TestStatistic(t), numfmt.PText(t.P))
 		}

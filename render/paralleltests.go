@@ -29,12 +29,17 @@ func writeTests(d *doc, or *runner.OutcomeResult) {
 	for _, tb := range or.Tests {
 		d.h(4, tb.Approach.String()+", "+tb.Link.String())
 		var rows [][]string
+		var warned poolingWarnings
+		row := func(label string, t fit.Test) []string {
+			warned.add(label, t)
+			return testRow(label, t)
+		}
 		for _, t := range tb.Global {
-			rows = append(rows, testRow(testLabel(t.Name)+" (all predictors)", t))
+			rows = append(rows, row(testLabel(t.Name)+" (all predictors)", t))
 		}
 		for _, vt := range tb.PerVariable {
 			for _, t := range vt.Tests {
-				rows = append(rows, testRow(testLabel(t.Name)+": "+vt.Predictor, t))
+				rows = append(rows, row(testLabel(t.Name)+": "+vt.Predictor, t))
 			}
 		}
 		if len(rows) > 0 {
@@ -42,12 +47,30 @@ func writeTests(d *doc, or *runner.OutcomeResult) {
 		}
 		rows = nil
 		for _, nt := range tb.Nested {
-			rows = append(rows, testRow(nt.Restricted+" within "+nt.Full, nt.Test))
+			rows = append(rows, row(nt.Restricted+" within "+nt.Full, nt.Test))
 		}
 		if len(rows) > 0 {
 			d.p("Nested likelihood-ratio tests:")
 			d.captioned(fmt.Sprintf("Nested likelihood-ratio tests, %s %s", tb.Approach, tb.Link)).table([]string{"Restricted within full", "Chi-square", "df", "p"}, rows)
 		}
+		warned.write(d)
+	}
+}
+
+// poolingWarnings are what the pooling rule said of the pooled tests of
+// a table (fit.Test.Warning), each with the test's label in the table.
+type poolingWarnings [][2]string
+
+func (w *poolingWarnings) add(label string, t fit.Test) {
+	if t.OK && t.Warning != "" {
+		*w = append(*w, [2]string{label, t.Warning})
+	}
+}
+
+// write says them below the table, one paragraph each.
+func (w poolingWarnings) write(d *doc) {
+	for _, x := range w {
+		d.p("**Warning**, %s: %s.", mdText(x[0]), mdText(x[1]))
 	}
 }
 

@@ -41,7 +41,10 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	}
 	pooled := false
 	var rows [][]string
+	var warned poolingWarnings
 	for _, tt := range or.TermTests {
+		warned.add("Wald test of "+tt.Term, tt.Wald)
+		warned.add("likelihood-ratio test of "+tt.Term, tt.LR)
 		with := "(alone)"
 		if len(tt.With) > 0 {
 			with = strings.Join(tt.With, ", ")
@@ -61,6 +64,7 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		rows = append(rows, row)
 	}
 	d.captioned("Tests of each term of "+or.Chosen.ID).table(head, rows)
+	warned.write(d)
 	if a := r.Analysis; a != nil && a.Errors.Covariance.IsSandwich() && !a.Errors.Sampling {
 		d.p("The Wald tests use the standard errors of the %s, which do not rest on the model's variance being right; the likelihood-ratio tests rest on it (and treat the rows as independent), so where the two disagree this may be why.", a.Errors.Covariance.Phrase())
 	}
@@ -108,7 +112,7 @@ func termTestRows(or *runner.OutcomeResult) [][]string {
 			if t.Name == fit.TestLR.String() {
 				restricted = tt.Without
 			}
-			rows = append(rows, append(row, csvNum(t.Chi2), strconv.Itoa(t.DF), df2, csvNum(t.P), t.Pooled, restricted, ""))
+			rows = append(rows, append(row, csvNum(t.Chi2), strconv.Itoa(t.DF), df2, csvNum(t.P), t.Pooled, restricted, t.Warning))
 		}
 	}
 	return rows

@@ -646,7 +646,7 @@ func pooledWald(res *fit.Result, pl *impute.Pooled, rows [][]float64, c0 []float
 
 // fTest records a pooled F test in the test record: Chi2 holds DF x F.
 func fTest(kind fit.TestKind, t impute.FTest, llr, llf float64) fit.Test {
-	out := fit.Test{Name: kind.String(), OK: true, Chi2: t.F * float64(t.DF1), DF: t.DF1, P: t.P, Pooled: t.Method, DF2: t.DF2}
+	out := fit.Test{Name: kind.String(), OK: true, Chi2: t.F * float64(t.DF1), DF: t.DF1, P: t.P, Pooled: t.Method, DF2: t.DF2, Warning: t.Warnings}
 	if !math.IsNaN(llr) {
 		out.LLRestricted, out.LLFull = llr, llf
 	}

@@ -538,6 +538,47 @@ func manyRows(t *testing.T, dir, id string) {
 	os.WriteFile(filepath.Join(dir, "many.csv"), []byte(strings.Join(out, "\n")+"\n"), 0o644)
 }
 
+// disagreeingSets writes ID-orig.csv (y in three categories from x; z
+// missing in about 60% of the rows) and two imputed sets that fill the
+// missing z with x plus noise (ID-s1.csv) and minus x plus noise
+// (ID-s2.csv): without x the model's slope of z changes sign from one
+// set to the other, so its pooled estimates fit each set far worse than
+// its own, and D3's between-imputation part for the test of x is
+// negative.
+func disagreeingSets(t *testing.T, dir, id string) {
+	t.Helper()
+	rng := rand.New(rand.NewPCG(10, 3))
+	var orig, s1, s2 strings.Builder
+	for _, b := range []*strings.Builder{&orig, &s1, &s2} {
+		b.WriteString("y,x,z\n")
+	}
+	for i := 0; i < 300; i++ {
+		x, u := rng.NormFloat64(), rng.Float64()
+		lat := math.Log(u/(1-u)) + 0.8*x
+		y := 1
+		for _, c := range []float64{-0.5, 0.8} {
+			if lat > c {
+				y++
+			}
+		}
+		if rng.Float64() < 0.6 {
+			fmt.Fprintf(&orig, "%d,%.4f,\n", y, x)
+			fmt.Fprintf(&s1, "%d,%.4f,%.4f\n", y, x, x+0.3*rng.NormFloat64())
+			fmt.Fprintf(&s2, "%d,%.4f,%.4f\n", y, x, -x+0.3*rng.NormFloat64())
+			continue
+		}
+		row := fmt.Sprintf("%d,%.4f,%.4f\n", y, x, rng.NormFloat64())
+		orig.WriteString(row)
+		s1.WriteString(row)
+		s2.WriteString(row)
+	}
+	for name, b := range map[string]*strings.Builder{"orig": &orig, "s1": &s1, "s2": &s2} {
+		if err := os.WriteFile(filepath.Join(dir, id+"-"+name+".csv"), []byte(b.String()), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+}
+
 func imputedFiles(t *testing.T, dir, id string) {
 	t.Helper()
 	b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
@@ -748,6 +789,29 @@ func catalogue(dir string) (items []badInput) {
 			check: func(t *testing.T, dir, out, errs string) {
 				if b, _ := os.ReadFile(filepath.Join(dir, "O11-out", "imputed-sets-y.csv")); string(b) != "my own sets\n" {
 					t.Errorf("the user's file was changed: %q", b)
+				}
+			}},
+		{id: "W10", name: "D3 with a negative between-imputation part", args: []string{"run"}, setup: disagreeingSets,
+			plan: "version: 1\ndata: {file: W10-orig.csv, imputed: {files: [W10-s1.csv, W10-s2.csv]}}\noutcomes: [{column: y}]\npredictors: [x, z]\nmodels: {approaches: [cumulative], effects: [parallel]}\ntests: {parallel_lines: []}\nrules:\n  - choose: {by: aic}\n", code: 0,
+			want: []string{"report: W10-out/report.html"},
+			check: func(t *testing.T, dir, out, errs string) {
+				const want = "D3's between-imputation part came out negative (r = "
+				md, _ := os.ReadFile(filepath.Join(dir, "W10-out", "report.md"))
+				js, _ := os.ReadFile(filepath.Join(dir, "W10-out", "decisions.json"))
+				if !strings.Contains(string(md), "**Warning**, likelihood-ratio test of x: "+want) {
+					t.Errorf("report.md does not warn of D3 beside the test of x")
+				}
+				var dec struct {
+					Outcomes []struct {
+						TermTests []struct {
+							Term string
+							LR   struct{ Warning string }
+						} `json:"term_tests"`
+					}
+				}
+				if err := json.Unmarshal(js, &dec); err != nil || len(dec.Outcomes) != 1 || len(dec.Outcomes[0].TermTests) != 2 ||
+					!strings.HasPrefix(dec.Outcomes[0].TermTests[0].LR.Warning, want) {
+					t.Errorf("decisions.json: %v %+v", err, dec)
 				}
 			}},
 		{id: "I16", name: "imputation settings without impute", args: []string{"check"},

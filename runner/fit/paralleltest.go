@@ -97,6 +97,9 @@ type Test struct {
 	// is F(DF, DF2) = Chi2/DF and P comes from that F distribution.
 	Pooled string  `json:"pooled,omitempty"`
 	DF2    float64 `json:"df2,omitempty"`
+	// Warning is what the pooling rule says of a test it computed
+	// (D3: a negative between-imputation part set to 0).
+	Warning string `json:"warning,omitempty"`
 }
 
 // MarshalJSON writes a test that was not computed (OK false, not

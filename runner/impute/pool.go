@@ -323,8 +323,8 @@ func D3(own, atPooled []float64, k int) (FTest, error) {
 	r := (float64(m) + 1) / (fk * float64(m-1)) * (mo - mp)
 	warn := ""
 	if r < 0 {
+		warn = fmt.Sprintf("D3's between-imputation part came out negative (r = %.3g: the %d sets' statistics at the pooled estimates average more than at their own) and was set to 0, so the test is the mean statistic at the pooled estimates on infinite denominator degrees of freedom, as if nothing were missing; by chance when the sets differ little, otherwise a sign that the imputations disagree in a way D3 does not allow for", r, m)
 		r = 0
-		warn = "the statistics at the pooled estimates exceed those at each set's own (r < 0, set to 0)"
 	}
 	f := mp / (fk * (1 + r))
 	df2 := pooledTestDF(k, m, r)

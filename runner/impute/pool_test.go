@@ -6,6 +6,7 @@ import (
 	"os"
 	"path/filepath"
 	"strconv"
+	"strings"
 	"testing"
 
 	"ordplan/internal/rscript"
@@ -399,5 +400,20 @@ func TestFSurvivalSmallP(t *testing.T) {
 		if got := fSurvival(c.f, 3, 20); math.Abs(got-c.want) > 1e-12*c.want {
 			t.Errorf("P(F(3, 20) > %g) = %.17g, R gives %.17g", c.f, got, c.want)
 		}
+	}
+}
+
+// TestD3NegativeBetweenPart: statistics at the pooled estimates above
+// those at each set's own give a negative r, which D3 sets to 0: the test
+// is then the mean statistic at the pooled estimates over k on infinite
+// denominator degrees of freedom, and Warnings says so (by hand: r =
+// (m+1)/(k(m-1)) (mean own - mean pooled) = 3/1 (1 - 3) = -6).
+func TestD3NegativeBetweenPart(t *testing.T) {
+	d, err := D3([]float64{1, 1}, []float64{3, 3}, 1)
+	if err != nil || d.F != 3 || d.RIV != 0 || !math.IsInf(d.DF2, 1) || !strings.Contains(d.Warnings, "r = -6") {
+		t.Errorf("%+v %v", d, err)
+	}
+	if d, _ := D3([]float64{3, 3}, []float64{1, 1}, 1); d.Warnings != "" {
+		t.Errorf("a positive r warns: %q", d.Warnings)
 	}
 }
