@@ -150,6 +150,16 @@ func writeFreeSets(d *doc, or *runner.OutcomeResult) {
 		}
 		d.captioned(fmt.Sprintf("Stepwise selection of the partial set, %s %s", s.Approach, s.Link)).table([]string{"Step", "Log-likelihood", "Tests of equal slopes", "Made parallel"}, rows)
 		warned.write(d)
+		var flags []collinearFlags
+		for _, st := range s.Result.Steps {
+			for _, sk := range st.Skipped {
+				d.p("Step %d passed over %s: %s.", st.Step, mdCode(sk.Term), mdText(sk.Reason))
+			}
+			flags = append(flags, collinearFlags{fmt.Sprint(st.Step), st.Collinear})
+		}
+		if n := collinearWarning(flags, "the model of step", "the models of steps"); n != "" {
+			d.p("%s", n)
+		}
 		if t := s.Result.FinalTest; t.OK {
 			d.p("Joint test that every predictor made parallel has equal slopes: %s, %s.", runner.TestStatistic(t), numfmt.PText(t.P))
 		}
@@ -187,29 +197,47 @@ func writeModelTable(d *doc, or *runner.OutcomeResult, sampling bool) {
 }
 
 // collinearNote warns of near-collinearity among the candidate models in
-// one paragraph: one clause per flagged term (in the order first met in
-// the grid) naming the models whose fits flag it and the range of its
-// variance inflation over them, term and model names escaped, then what
-// the measure means, once; "" when no candidate flags a term.
+// one paragraph (collinearWarning); "" when no candidate flags a term.
 func collinearNote(or *runner.OutcomeResult) string {
+	var flags []collinearFlags
+	for _, f := range or.Fits {
+		if f.Auxiliary || f.Result == nil {
+			continue
+		}
+		flags = append(flags, collinearFlags{mdText(f.ID), f.Result.Collinear})
+	}
+	return collinearWarning(flags, "model", "models")
+}
+
+// collinearFlags are the terms one model flags as nearly collinear, with
+// the model's name (Markdown).
+type collinearFlags struct {
+	model string
+	terms []fit.Inflation
+}
+
+// collinearWarning warns of near-collinearity in one paragraph: one
+// clause per flagged term (in the order first met) naming the models
+// whose fits flag it (after one, or many when several: "model",
+// "models") and the range of its variance inflation over them, term
+// names escaped, then what the measure means, once; "" when no model
+// flags a term.
+func collinearWarning(flags []collinearFlags, one, many string) string {
 	type flagged struct {
 		models   []string
 		low, top float64
 	}
 	var order []string
 	by := map[string]*flagged{}
-	for _, f := range or.Fits {
-		if f.Auxiliary || f.Result == nil {
-			continue
-		}
-		for _, v := range f.Result.Collinear {
+	for _, f := range flags {
+		for _, v := range f.terms {
 			t := by[v.Term]
 			if t == nil {
 				t = &flagged{low: v.Factor, top: v.Factor}
 				by[v.Term] = t
 				order = append(order, v.Term)
 			}
-			t.models = append(t.models, mdText(f.ID))
+			t.models = append(t.models, f.model)
 			t.low, t.top = math.Min(t.low, v.Factor), math.Max(t.top, v.Factor)
 		}
 	}
@@ -223,9 +251,9 @@ func collinearNote(or *runner.OutcomeResult) string {
 		if t.top != t.low {
 			factor = fmt.Sprintf("%.3g to %.3g", t.low, t.top)
 		}
-		which := "model " + t.models[0]
+		which := one + " " + t.models[0]
 		if len(t.models) > 1 {
-			which = "models " + words.AndList(t.models)
+			which = many + " " + words.AndList(t.models)
 		}
 		out[i] = fmt.Sprintf("the slopes of %s have variance inflation %s in %s", mdCode(term), factor, which)
 	}

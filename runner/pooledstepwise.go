@@ -30,11 +30,12 @@ func pooledStepwise(an *Analysis, or *OutcomeResult) fit.StepwiseFits {
 		return pf, ok
 	}
 	// Each set fits as a selection on one data set does (its fit and
-	// sandwich step), with that set's rows.
+	// the step of CovariancePolicy.Settle), with that set's rows; the
+	// pooled fit flags a term any set flags (poolResults).
 	setFit := make([]func(fit.Model) (*fit.Result, error), len(im.Sets))
 	for k, d := range im.Sets {
 		opt := an.Fit
-		opt.Sandwich = an.Errors.Sandwich(im.Data[k], d)
+		opt.Settle = an.Errors.Settle(im.Data[k], d, or.Terms)
 		setFit[k] = fit.DataStepwiseFits(d, opt).Fit
 	}
 	sf := fit.StepwiseFits{Predictors: or.FitData.Predictors}

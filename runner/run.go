@@ -118,20 +118,21 @@ func runOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash 
 		return nil, err
 	}
 	fopt := an.Fit
-	sandwich := an.Errors.Sandwich(ds, or.FitData)
+	settle := an.Errors.Settle(ds, or.FitData, or.Terms)
 	links := an.Models.Links
 	backward := an.Models.Backward()
 
 	// 1. The partial set of each approach: listed, or selected stepwise
-	// (with the plan's standard errors).
+	// (each fit settled as the grid's are: the near-collinearity flag and
+	// the plan's standard errors).
 	swopt := fopt
-	swopt.Sandwich = sandwich
+	swopt.Settle = settle
 	or.FreeSets, or.Stepwise = freeSets(an, or.Terms, fit.DataStepwiseFits(or.FitData, swopt), backward, opt.Workers)
 
 	// 2. The grid of candidate fits and the auxiliary fits the tests need.
 	jobs, notes := gridJobs(an, or.Terms, or.FreeSets, backward)
 	or.Notes = append(or.Notes, notes...)
-	target := gridTarget{label: oc.Column, data: or.FitData, fit: fopt, settle: an.Errors.Settle(ds, or.FitData, or.Terms),
+	target := gridTarget{label: oc.Column, data: or.FitData, fit: fopt, settle: settle,
 		remote: &remoteData{outcome: oc.Column, dataFile: an.DataFile, dataHash: hash, dataOptions: r.Options}}
 	if !dz.Trivial() {
 		target.remote.design = dz.Freeze(r.Design)

@@ -114,10 +114,11 @@ type Options struct {
 	// on the weights' scale: rescaled to sum to the rows (as the runner's
 	// reader does), it is on the sample's.
 	Sampling bool `json:"sampling,omitempty"`
-	// Sandwich, when set, replaces the covariance of every usable fit that
-	// Stepwise makes before it tests (robust or cluster-robust errors).
+	// Settle, when set, is the step every usable fit that Stepwise makes
+	// takes before it tests, as the fits of a plan's grid do (the
+	// near-collinearity flag, then robust or cluster-robust errors).
 	// Fit itself ignores it.
-	Sandwich func(*Result) error `json:"-"`
+	Settle func(*Result) error `json:"-"`
 	// maximumOnly asks for the maximized log-likelihood alone (a refit
 	// that only enters a likelihood-ratio statistic, such as LipsitzTest's):
 	// a model without constrained predictors is then iterated by

@@ -182,7 +182,7 @@ func lipsitzRefit(d *Data, r *Result, t *ScoreGroups, opt Options) (*Result, err
 		return nil, err
 	}
 	opt.Start = start
-	opt.Sandwich = nil
+	opt.Settle = nil
 	opt.maximumOnly = true
 	var first *firstSums
 	if r.last != nil {

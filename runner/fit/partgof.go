@@ -491,7 +491,7 @@ func LipsitzOverParts(r *Result, w Whole, parts ScoreParts, groups int, opt Opti
 		aw.Spread = indicatorSpread(w.Spread, t)
 	}
 	opt.Start = start
-	opt.Sandwich = nil
+	opt.Settle = nil
 	cut := q
 	full, err := FitFromSums(aw, am,
 		func(theta []float64, order int) (*Sums, error) { return parts.Sums(&cut, am, theta, order) },

@@ -2,6 +2,7 @@ package fit
 
 import (
 	"fmt"
+	"strconv"
 )
 
 // StepwiseStep is one step of the backward selection of parallel
@@ -12,6 +13,29 @@ type StepwiseStep struct {
 	Tests   []Test  `json:"tests"` // one per free predictor, Name = predictor
 	Imposed string  `json:"imposed,omitempty"`
 	P       float64 `json:"p,omitempty"`
+	// Skipped are the free candidates the step passed over because their
+	// test has no p-value, each with why (absent when none).
+	Skipped []SkippedCandidate `json:"skipped,omitempty"`
+	// Collinear are the terms the step's current model flags as nearly
+	// collinear (Result.Collinear; absent when none).
+	Collinear []Inflation `json:"collinear,omitempty"`
+}
+
+// SkippedCandidate is a candidate a step of the selection could not weigh.
+type SkippedCandidate struct {
+	Term   string `json:"term"`
+	Reason string `json:"reason"`
+}
+
+// skipped says why a step passes over the candidate whose test t has no
+// p-value: a likelihood-ratio statistic below zero (the refit with the
+// candidate parallel, or the current model, did not reach its maximum),
+// or a test that could not be computed.
+func skipped(term string, t Test) SkippedCandidate {
+	if t.Negative {
+		return SkippedCandidate{Term: term, Reason: fmt.Sprintf("its likelihood-ratio statistic is negative (%s): the refit with %s parallel, or the current model, did not reach its maximum, so the step could not weigh it; it stays free at this step", strconv.FormatFloat(t.Chi2, 'g', 6, 64), term)}
+	}
+	return SkippedCandidate{Term: term, Reason: fmt.Sprintf("its test was not computed (%s), so the step could not weigh it; it stays free at this step", t.Reason)}
 }
 
 // StepwiseResult is the whole selection.
@@ -61,13 +85,13 @@ func StepwiseTerms(d *Data, base Model, candidates []Term, alpha float64, test T
 }
 
 // DataStepwiseFits are the fits and tests of a selection on data d: Fit
-// with opt (and its sandwich step), WaldEqualSlopes and LRTest.
+// with opt (and its Settle step), WaldEqualSlopes and LRTest.
 func DataStepwiseFits(d *Data, opt Options) StepwiseFits {
 	return StepwiseFits{Predictors: d.Predictors, Wald: WaldEqualSlopes, LR: LRTest,
 		Fit: func(m Model) (*Result, error) {
 			r, err := Fit(d, m, opt)
-			if err == nil && opt.Sandwich != nil && r.OK() {
-				err = opt.Sandwich(r)
+			if err == nil && opt.Settle != nil && r.OK() {
+				err = opt.Settle(r)
 			}
 			return r, err
 		}}
@@ -133,7 +157,7 @@ func StepwiseWith(sf StepwiseFits, base Model, candidates []Term, alpha float64,
 	var imposed []string
 	var imposedCols []string
 	for step := 1; ; step++ {
-		st := StepwiseStep{Step: step, LogLik: cur.LogLik}
+		st := StepwiseStep{Step: step, LogLik: cur.LogLik, Collinear: cur.Collinear}
 		best, bestP := -1, -1.0
 		var bestFit *Result
 		for i, c := range candidates {
@@ -154,6 +178,9 @@ func StepwiseWith(sf StepwiseFits, base Model, candidates []Term, alpha float64,
 			}
 			t.Name = c.Name
 			st.Tests = append(st.Tests, t)
+			if !t.OK {
+				st.Skipped = append(st.Skipped, skipped(c.Name, t))
+			}
 			if t.OK && t.P > bestP {
 				best, bestP, bestFit = i, t.P, alt
 			}
