@@ -24,7 +24,7 @@ var modelWords = map[chained.Method]string{
 // impute): the method, the sets, iterations and seed, each column's model,
 // the notes of the fits, the convergence summary when asked, and what
 // imputation assumes.
-func writeChained(d *doc, ch *runner.ChainedRecord, rows int, dz *design.Design, setsFile string) {
+func writeChained(d *doc, ch *runner.ChainedRecord, rows int, dz *design.Design, setsFile, cluster string) {
 	d.p("The imputed sets were made by this run by chained equations (fully conditional specification; van Buuren 2018): %d sets, each after %d iterations through the incomplete columns, with seed %d (set s draws from its own stream, so the sets do not depend on the number of workers). Of the %d rows, %d (%s) had a missing value in the outcome or a predictor column and were imputed rather than dropped. Each incomplete column was imputed from a model of it given the outcome and every other column used, as main effects of the raw columns; its parameters were drawn from their approximate posterior for every imputation, so that the sets reflect the uncertainty of the imputation model. Columns were visited in the order %s (fewest missing values first).",
 		ch.Sets, ch.Iterations, ch.Seed, rows, ch.RowsIncomplete, sharePct(ch.RowsIncomplete, rows), codeList(ch.Visits))
 	var tab [][]string
@@ -64,12 +64,21 @@ func writeChained(d *doc, ch *runner.ChainedRecord, rows int, dz *design.Design,
 	} else {
 		d.p("The completed sets are not among the outputs; `data.imputation.write_sets: true` writes them, for checking the imputations or analysing the sets elsewhere.")
 	}
-	d.p("Multiple imputation assumes that the values are missing at random given the columns in the imputation models: whether a value is missing may depend on the outcome and the other columns observed, not on the missing value itself. That assumption cannot be checked from the data; if missingness depends on the unseen values (missing not at random), the pooled estimates can be biased, and a sensitivity analysis is needed.")
+	d.p("Multiple imputation assumes that the values are missing at random given the columns in the imputation models: whether a value is missing may depend on the outcome and the other columns observed, not on the missing value itself. That assumption cannot be checked from the data; if missingness depends on the unseen values (missing not at random), the pooled estimates can be biased, and a sensitivity analysis is needed.%s", clusterCaution(cluster))
+}
+
+// clusterCaution says, when the plan has a cluster column, that the
+// imputation models leave the clusters out (or "").
+func clusterCaution(cluster string) string {
+	if cluster == "" {
+		return ""
+	}
+	return fmt.Sprintf(" The imputation models leave out the clusters of %s: values were imputed as if the rows of one cluster were no more alike than rows of different clusters. Where the outcome or the predictors differ between clusters, the imputed values follow the overall pattern instead of their cluster's, which can bias the pooled estimates and make their cluster-robust standard errors too small, more so the more values are missing.", mdCode(cluster))
 }
 
 // imputationMethods is the methods paragraph's sentence on imputed data:
 // how the sets were made (by this run or elsewhere) and pooled.
-func imputationMethods(im *runner.ImputedRun, dz *design.Design, c *citer) string {
+func imputationMethods(im *runner.ImputedRun, dz *design.Design, cluster string, c *citer) string {
 	pool := func() string {
 		return fmt.Sprintf("Every model was fitted on each of the %d imputed data sets and the results were combined by Rubin's rules %s.", im.M, c.cite("rubin"))
 	}
@@ -103,8 +112,8 @@ func imputationMethods(im *runner.ImputedRun, dz *design.Design, c *citer) strin
 			fallback = fmt.Sprintf(" Imputation models with perfect prediction were refitted with weighted pseudo-observations %s.", c.cite("augment"))
 		}
 	}
-	return fmt.Sprintf("The %d rows with a missing value in the outcome or a predictor were kept, and their missing values were multiply imputed by chained equations %s: %d imputed sets, each after %d iterations (seed %d), with %s, every model given the outcome and the other columns and its parameters drawn from their approximate posterior; transformations and interactions were computed from the imputed columns.%s%s The imputation assumes that values are missing at random given these columns. %s",
-		ch.RowsIncomplete, sources, ch.Sets, ch.Iterations, ch.Seed, strings.Join(models, "; "), fallback, mainEffectsCaution(dz), pool())
+	return fmt.Sprintf("The %d rows with a missing value in the outcome or a predictor were kept, and their missing values were multiply imputed by chained equations %s: %d imputed sets, each after %d iterations (seed %d), with %s, every model given the outcome and the other columns and its parameters drawn from their approximate posterior; transformations and interactions were computed from the imputed columns.%s%s The imputation assumes that values are missing at random given these columns.%s %s",
+		ch.RowsIncomplete, sources, ch.Sets, ch.Iterations, ch.Seed, strings.Join(models, "; "), fallback, mainEffectsCaution(dz), clusterCaution(cluster), pool())
 }
 
 // mainEffectsCaution warns, when the analysis has interactions or

@@ -58,6 +58,9 @@ rules:
 	if strings.Contains(md, "The imputation models hold main effects only") {
 		t.Error("the caution about terms the imputation models lack is given for a plan of main effects")
 	}
+	if strings.Contains(md, "leave out the clusters") {
+		t.Error("a plan without clusters: the report speaks of clusters the imputation left out")
+	}
 	// No constrained or stereotype model in the plan: neither the limits
 	// nor the methods speak of their random starts.
 	for _, s := range []string{"several local maxima", "random starts of constrained fits"} {
@@ -75,6 +78,25 @@ rules:
 		// The polynomial's constants come from set 1 and serve every set
 		// (runner's designSets), and the report says so.
 		"On imputed data they are computed on the first imputed set and used for every set, so that each parameter means the same in every set, as pooling by Rubin's rules needs.")
+
+	// With a cluster column (not a column of the imputation models), the
+	// limits under the imputation models and the methods paragraph say
+	// that the imputation ignored the clusters.
+	var c strings.Builder
+	for i, line := range strings.Split(strings.TrimSpace(b.String()), "\n") {
+		if i == 0 {
+			fmt.Fprintf(&c, "%s,site\n", line)
+		} else {
+			fmt.Fprintf(&c, "%s,s%d\n", line, i%45)
+		}
+	}
+	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(c.String()), 0o644)
+	src = strings.Replace(src, "data: {file: d.csv,", "data: {file: d.csv, cluster: site,", 1) + "covariance: clustered\n"
+	md = string(renderSource(t, dir, src, 2)["report.md"])
+	if n := strings.Count(md, "The imputation models leave out the clusters of `site`: values were imputed as if the rows of one cluster were no more alike than rows of different clusters."); n != 2 {
+		t.Errorf("the report says %d times that the imputation left the clusters out, want twice (under the imputation models and in the methods)", n)
+	}
+	hasAll(t, "report.md", md, "The imputation assumes that values are missing at random given these columns. The imputation models leave out the clusters of `site`")
 }
 
 // TestChainedReportDescribesObservedData: on data imputed by this run the

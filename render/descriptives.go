@@ -271,7 +271,7 @@ func pooledCriteriaText(sampling bool) string {
 	return "Log-likelihoods, AIC and BIC are means over the imputed sets: they are not the likelihood of one model, and rules on AIC or BIC compare these means."
 }
 
-func writeImputation(d *doc, or *runner.OutcomeResult, sampling bool) {
+func writeImputation(d *doc, or *runner.OutcomeResult, sampling bool, cluster string) {
 	im := or.Imputed
 	if im == nil {
 		return
@@ -309,7 +309,7 @@ func writeImputation(d *doc, or *runner.OutcomeResult, sampling bool) {
 		if im.WritesSets() {
 			setsFile = imputedSetsFile(or)
 		}
-		writeChained(d, im.Chained, im.Rows, or.Design, setsFile)
+		writeChained(d, im.Chained, im.Rows, or.Design, setsFile, cluster)
 		return
 	}
 	d.p("Multiple imputation assumes that the values are missing at random given the variables used to impute them: whether a value is missing may depend on what was observed, not on the missing value itself. The imputation model must include the outcome and every term of these models (their transformations and interactions too); otherwise the pooled effects are biased towards zero. The imputed sets were made outside this run, and their imputation model is not checked here.")

@@ -108,7 +108,7 @@ func writeMethods(d *doc, r *runner.Result) {
 			s = append(s, fmt.Sprintf("All %d rows were used.", ds.N))
 		}
 		if im := or.Imputed; im != nil {
-			s = append(s, imputationMethods(im, or.Design, c))
+			s = append(s, imputationMethods(im, or.Design, p.Data.Cluster, c))
 		}
 		var comps []string
 		for _, a := range p.Models.Approaches {

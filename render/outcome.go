@@ -18,7 +18,7 @@ import (
 func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	d.h(2, "Outcome: "+mdText(or.Outcome.Label))
 	sampling := r.Analysis != nil && r.Analysis.Errors.Sampling
-	writeData(d, or, sampling)
+	writeData(d, or, sampling, r.Plan.Data.Cluster)
 	writeFreeSets(d, or)
 	writeModelTable(d, or, sampling)
 	writeOverallFit(d, or)
@@ -41,7 +41,7 @@ func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	writeNewRows(d, r, or)
 }
 
-func writeData(d *doc, or *runner.OutcomeResult, sampling bool) {
+func writeData(d *doc, or *runner.OutcomeResult, sampling bool, cluster string) {
 	ds := or.AsRead()
 	d.h(3, "Data")
 	obs := ""
@@ -106,7 +106,7 @@ func writeData(d *doc, or *runner.OutcomeResult, sampling bool) {
 		d.captioned("Predictor terms").table([]string{"Term", "What it is", "Columns"}, rows)
 	}
 	writeDescriptives(d, or, sampling)
-	writeImputation(d, or, sampling)
+	writeImputation(d, or, sampling, cluster)
 }
 
 func writeFreeSets(d *doc, or *runner.OutcomeResult) {

@@ -62,13 +62,16 @@ func lockOutput(dir string) (*outputLock, error) {
 }
 
 // Unlock ends the watch on interrupts (delivering one held since a failed
-// write) and releases the lock.
+// write) and releases the lock. The lock file is emptied first: the
+// holder's process id and host name are for a run that is still writing,
+// and a finished folder holds the same bytes whoever ran it.
 func (l *outputLock) Unlock() {
 	if l != nil && l.w != nil {
 		l.w.end()
 		l.w = nil
 	}
 	if l != nil && l.f != nil {
+		l.f.Truncate(0)
 		unlockFile(l.f)
 		l.f.Close()
 		l.f = nil

@@ -59,12 +59,20 @@ func TestLockOutput(t *testing.T) {
 	if _, err := lockOutput(dir); err == nil || !strings.Contains(err.Error(), "another ordplan run is writing there") {
 		t.Fatalf("second lock: %v", err)
 	}
+	if b, _ := os.ReadFile(filepath.Join(dir, lockFile)); !strings.HasPrefix(string(b), "process ") {
+		t.Errorf("a held lock names its holder: %q", b)
+	}
 	l1.Unlock()
 	l2, err := lockOutput(dir)
 	if err != nil {
 		t.Fatal(err)
 	}
 	l2.Unlock()
+	// A released lock is empty: two runs leave the same bytes, whatever
+	// host and process wrote them.
+	if b, err := os.ReadFile(filepath.Join(dir, lockFile)); err != nil || len(b) != 0 {
+		t.Errorf("a released lock holds %q (%v), want nothing", b, err)
+	}
 	f := filepath.Join(t.TempDir(), "file")
 	os.WriteFile(f, nil, 0o644)
 	if _, err := lockOutput(f); err == nil || !strings.Contains(err.Error(), "not a folder") {

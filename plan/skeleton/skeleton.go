@@ -185,7 +185,7 @@ func Write(in Input) ([]byte, error) {
 	} else {
 		w("  weights: null           # a column of case weights")
 	}
-	w("  offset: null            # a column added to every linear predictor")
+	w("  offset: null            # a known term added to x'b: L = tau - x'b - offset")
 	w("  cluster: null           # a column of cluster ids (needs covariance: clustered)")
 	w("")
 	w("outcomes:")
