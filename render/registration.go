@@ -124,7 +124,11 @@ func writeUnusedDeviations(d *doc, st *lock.Status) {
 	}
 	var items []string
 	for _, dv := range st.Unused {
-		items = append(items, fmt.Sprintf("`%s` (plan line %d): %s", dv.Key, dv.Line, dv.Reason))
+		item := fmt.Sprintf("`%s` (plan line %d): %s", dv.Key, dv.Line, dv.Reason)
+		if k := st.NearestChanged(dv); k != "" {
+			item += fmt.Sprintf(" (a misspelling of `%s`, which changed?)", k)
+		}
+		items = append(items, item)
 	}
 	d.p("The plan's `deviations` list also names key(s) that did not change from the registered plan:")
 	d.list(items)

@@ -43,6 +43,10 @@ func registrationItems() []badInput {
 			setup: func(t *testing.T, dir, id string) { freezeAs(t, dir, id, goodPlan) },
 			want: []string{"R1.yaml: the plan departs from its registered form (R1.lock.json, frozen 2026-12-01T09:00:00Z) in 1 key(s) without a stated reason:",
 				`rules[1].choose.by: "aic" -> "bic"`, "--allow-unregistered-changes"}},
+		{id: "R7", name: "a deviation's key misspelt", args: []string{"run"}, plan: changed + "deviations:\n  - key: rules[1].chose.by\n    reason: BIC was registered in the protocol\n", code: 1, lines: true,
+			setup: func(t *testing.T, dir, id string) { freezeAs(t, dir, id, goodPlan) },
+			want: []string{`rules[1].choose.by: "aic" -> "bic"`,
+				`deviations: "rules[1].chose.by" (line 15) explains no change from the frozen plan; did you mean "rules[1].choose.by", which changed?`}},
 		{id: "R2", name: "lock file edited by hand", args: []string{"check"}, plan: goodPlan, code: 1,
 			setup: func(t *testing.T, dir, id string) {
 				lp := freezeAs(t, dir, id, goodPlan)

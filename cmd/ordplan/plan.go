@@ -58,7 +58,7 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stdout, "  %s: %s -> %s (%s)\n", c.Path, c.From, c.To, reason)
 	}
 	for _, dv := range st.Unused {
-		fmt.Fprintf(stdout, "note: deviations: %q (line %d) explains no change from the frozen plan\n", dv.Key, dv.Line)
+		fmt.Fprintf(stdout, "note: %s\n", st.UnusedNote(dv))
 	}
 	what := "plan is valid"
 	if *noData {

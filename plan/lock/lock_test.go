@@ -87,6 +87,35 @@ func TestChangedRuleWithoutReason(t *testing.T) {
 	}
 }
 
+// A stated deviation whose key is a misspelling of the changed key is
+// pointed out where the run stops, with the key it may mean; a key like
+// no changed one gets no guess.
+func TestMisspeltDeviationKey(t *testing.T) {
+	src := strings.Replace(basePlan, "alpha: 0.05}", "alpha: 0.01}", 1) +
+		"deviations:\n  - key: rules[1].reject_if_test_reject.alpha\n    reason: stricter\n  - key: outcomes\n    reason: not changed\n"
+	p, _ := setup(t, src)
+	_, err := Check(p, false)
+	var ue *UnexplainedError
+	if !errors.As(err, &ue) {
+		t.Fatalf("want an UnexplainedError, got %v", err)
+	}
+	for _, want := range []string{
+		"rules[1].reject_if_test_rejects.alpha: 0.05 -> 0.01",
+		`deviations: "rules[1].reject_if_test_reject.alpha" (line 18) explains no change from the frozen plan; did you mean "rules[1].reject_if_test_rejects.alpha", which changed?`,
+		`deviations: "outcomes" (line 20) explains no change from the frozen plan` + "\n",
+	} {
+		if !strings.Contains(err.Error(), want) {
+			t.Errorf("message lacks %q:\n%v", want, err)
+		}
+	}
+	// A misspelt enclosing key is matched against the changed keys'
+	// enclosing keys.
+	dv := plan.Deviation{Key: "rule[1]", Line: 3}
+	if k := ue.Status.NearestChanged(dv); k != "rules[1]" {
+		t.Errorf("nearest changed key to rule[1]: %q, want rules[1]", k)
+	}
+}
+
 func TestChangedRuleWithReason(t *testing.T) {
 	src := strings.Replace(basePlan, "alpha: 0.05}", "alpha: 0.01}", 1) +
 		"deviations:\n  - key: rules[1]\n    reason: the registry asked for a stricter test\n  - key: predictors\n    reason: not changed\n"

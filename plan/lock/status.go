@@ -8,6 +8,7 @@ import (
 	"path/filepath"
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/plan"
 )
 
@@ -121,6 +122,36 @@ func CheckVersion(p *plan.Plan, allow bool, version string) (*Status, error) {
 	return st, nil
 }
 
+// NearestChanged is the changed key (or a key enclosing one) nearest to a
+// stated deviation's key that explains no change, when one is near enough
+// to be a misspelling of it, or "".
+func (st *Status) NearestChanged(dv plan.Deviation) string {
+	var keys []string
+	for _, c := range st.Changes {
+		p := c.Path
+		for i := range len(p) {
+			if p[i] == '.' || p[i] == '[' {
+				keys = append(keys, p[:i])
+			}
+		}
+		keys = append(keys, p)
+	}
+	if near := words.Nearest(dv.Key, keys, 1); len(near) == 1 {
+		return near[0]
+	}
+	return ""
+}
+
+// UnusedNote says that a stated deviation explains no change from the
+// frozen plan, naming the changed key it may misspell.
+func (st *Status) UnusedNote(dv plan.Deviation) string {
+	s := fmt.Sprintf("deviations: %q (line %d) explains no change from the frozen plan", dv.Key, dv.Line)
+	if k := st.NearestChanged(dv); k != "" {
+		s += fmt.Sprintf("; did you mean %q, which changed?", k)
+	}
+	return s
+}
+
 // UnexplainedError stops a run whose plan departs from the frozen form
 // without a stated reason.
 type UnexplainedError struct {
@@ -138,6 +169,9 @@ func (e *UnexplainedError) Error() string {
 		if c.Reason == "" {
 			fmt.Fprintf(&b, "\n  %s: %s -> %s", c.Path, c.From, c.To)
 		}
+	}
+	for _, dv := range e.Status.Unused {
+		fmt.Fprintf(&b, "\n%s", e.Status.UnusedNote(dv))
 	}
 	if e.Status.Lock.Version != e.Version && e.Version != "" {
 		fmt.Fprintf(&b, "\n(the lock was written by ordplan %s, this is %s: a key the newer program adds shows as a change from (absent))", e.Status.Lock.Version, e.Version)
