@@ -374,49 +374,58 @@ func previousOutputs(dir string) map[string]string {
 	return outputs
 }
 
-// previousRecord reads the run.json in dir: the SHA-256 of each output it
-// records, and whether a regular file there is not such a record (the
-// user's own run.json). A symlink there counts as absent (notPlainFiles
-// refuses it before anything is written).
+// previousRecord reads the run.json in dir (readRecord): the SHA-256 of
+// each output it records, and whether a regular file there is not such a
+// record (the user's own run.json). A symlink there counts as absent
+// (notPlainFiles refuses it before anything is written).
 func previousRecord(dir string) (outputs map[string]string, foreign bool) {
-	path := filepath.Join(dir, recordFile)
-	fi, err := os.Lstat(path)
-	if err != nil || !fi.Mode().IsRegular() {
+	rec, found := readRecord(filepath.Join(dir, recordFile))
+	if !found {
 		return nil, false
 	}
-	if fi.Size() > 64<<20 {
+	if rec == nil || rec.Outputs == nil {
 		return nil, true
 	}
-	b, err := os.ReadFile(path)
-	if err != nil {
-		return nil, true
-	}
-	var prev struct {
-		Program string            `json:"program"`
-		Outputs map[string]string `json:"outputs_sha256"`
-	}
-	if json.Unmarshal(b, &prev) != nil || prev.Program != "ordplan" || prev.Outputs == nil {
-		return nil, true
-	}
-	return prev.Outputs, false
+	return rec.Outputs, false
 }
 
 // previousMaker is the command the run.json in dir names as the maker of
 // its outputs ("" for a record from before it was kept); ok is false when
 // there is no ordplan record there.
 func previousMaker(dir string) (command string, ok bool) {
-	b, err := os.ReadFile(filepath.Join(dir, recordFile))
-	if _, foreign := previousRecord(dir); err != nil || foreign {
+	rec, _ := readRecord(filepath.Join(dir, recordFile))
+	if rec == nil || rec.Outputs == nil {
 		return "", false
 	}
-	var prev struct {
-		Program string `json:"program"`
-		MadeBy  string `json:"made_by"`
+	return rec.MadeBy, true
+}
+
+// maxRecordBytes is the largest run.json read as a record: larger is not
+// one this program wrote.
+const maxRecordBytes = 64 << 20
+
+// readRecord reads the run record at path, the one reader of run.json
+// files (an output folder's and those kept under earlier/). found is false
+// when no regular file is there (absent, a symlink, a folder); rec is nil
+// when the file there is not an ordplan run record (larger than
+// maxRecordBytes, unreadable, not JSON of a record, another program's).
+func readRecord(path string) (rec *runner.RunRecord, found bool) {
+	fi, err := os.Lstat(path)
+	if err != nil || !fi.Mode().IsRegular() {
+		return nil, false
 	}
-	if json.Unmarshal(b, &prev) != nil || prev.Program != "ordplan" {
-		return "", false
+	if fi.Size() > maxRecordBytes {
+		return nil, true
 	}
-	return prev.MadeBy, true
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return nil, true
+	}
+	var r runner.RunRecord
+	if json.Unmarshal(b, &r) != nil || r.Program != "ordplan" {
+		return nil, true
+	}
+	return &r, true
 }
 
 // usersFiles lists the files in dir among names that a run would replace
@@ -558,25 +567,22 @@ func keepEarlier(dir string, names []string) (string, error) {
 // version), or, when none of these, that the same inputs gave other
 // outputs.
 func recordChange(kept string, record []byte) string {
-	type inputs struct {
-		Version string `json:"version"`
-		Plan    struct {
-			SHA256 string `json:"sha256"`
-		} `json:"plan"`
-		Data struct {
-			SHA256 string `json:"sha256"`
-		} `json:"data"`
-	}
-	var was, now inputs
-	b, err := os.ReadFile(filepath.Join(kept, recordFile))
-	if err != nil || json.Unmarshal(b, &was) != nil || json.Unmarshal(record, &now) != nil {
+	was, _ := readRecord(filepath.Join(kept, recordFile))
+	var now runner.RunRecord
+	if was == nil || json.Unmarshal(record, &now) != nil {
 		return "its record could not be read"
+	}
+	dataHash := func(r *runner.RunRecord) string {
+		if r.Data == nil {
+			return ""
+		}
+		return r.Data.SHA256
 	}
 	var changed []string
 	if was.Plan.SHA256 != now.Plan.SHA256 {
 		changed = append(changed, "the plan changed")
 	}
-	if was.Data.SHA256 != now.Data.SHA256 {
+	if dataHash(was) != dataHash(&now) {
 		changed = append(changed, "the data changed")
 	}
 	if was.Version != now.Version {
@@ -600,19 +606,9 @@ func folderRecords(dir string) []runner.RunRecord {
 	}
 	var out []runner.RunRecord
 	for _, p := range paths {
-		fi, err := os.Lstat(p)
-		if err != nil || !fi.Mode().IsRegular() || fi.Size() > 64<<20 {
-			continue
+		if rec, _ := readRecord(p); rec != nil {
+			out = append(out, *rec)
 		}
-		b, err := os.ReadFile(p)
-		if err != nil {
-			continue
-		}
-		var rec runner.RunRecord
-		if json.Unmarshal(b, &rec) != nil || rec.Program != "ordplan" {
-			continue
-		}
-		out = append(out, rec)
 	}
 	return out
 }

@@ -396,3 +396,47 @@ func TestClaimRemovesTemporaries(t *testing.T) {
 		}
 	}
 }
+
+// TestReadRecordOneReader: previousRecord, previousMaker and folderRecords
+// read run.json through readRecord alike: a folder, a symlink or no file
+// is no record and not foreign; another program's JSON, text that is not
+// JSON and a record without outputs are foreign to previousRecord and
+// passed over by folderRecords; an ordplan record is read by all three.
+func TestReadRecordOneReader(t *testing.T) {
+	rec := `{"program":"ordplan","version":"v","made_by":"rehearse","plan":{"sha256":"p"},"outputs_sha256":{"report.md":"aa"}}`
+	cases := []struct {
+		name     string
+		make     func(dir string)
+		outputs  bool // previousRecord gives outputs
+		foreign  bool
+		maker    string
+		makerOK  bool
+		inFolder int // records folderRecords gives
+	}{
+		{"none", func(string) {}, false, false, "", false, 0},
+		{"folder", func(d string) { os.Mkdir(filepath.Join(d, "run.json"), 0o755) }, false, false, "", false, 0},
+		{"symlink", func(d string) {
+			os.WriteFile(filepath.Join(d, "real.json"), []byte(rec), 0o644)
+			os.Symlink("real.json", filepath.Join(d, "run.json"))
+		}, false, false, "", false, 0},
+		{"not JSON", func(d string) { os.WriteFile(filepath.Join(d, "run.json"), []byte("my notes"), 0o644) }, false, true, "", false, 0},
+		{"another program", func(d string) {
+			os.WriteFile(filepath.Join(d, "run.json"), []byte(`{"program":"other","outputs_sha256":{"a":"b"}}`), 0o644)
+		}, false, true, "", false, 0},
+		{"no outputs", func(d string) {
+			os.WriteFile(filepath.Join(d, "run.json"), []byte(`{"program":"ordplan","made_by":"run"}`), 0o644)
+		}, false, true, "", false, 1},
+		{"record", func(d string) { os.WriteFile(filepath.Join(d, "run.json"), []byte(rec), 0o644) }, true, false, "rehearse", true, 1},
+	}
+	for _, c := range cases {
+		dir := t.TempDir()
+		c.make(dir)
+		out, foreign := previousRecord(dir)
+		maker, ok := previousMaker(dir)
+		got := folderRecords(dir)
+		if (out != nil) != c.outputs || foreign != c.foreign || maker != c.maker || ok != c.makerOK || len(got) != c.inFolder {
+			t.Errorf("%s: previousRecord %v %v, previousMaker %q %v, folderRecords %d; want outputs %v, foreign %v, maker %q %v, %d records",
+				c.name, out, foreign, maker, ok, len(got), c.outputs, c.foreign, c.maker, c.makerOK, c.inFolder)
+		}
+	}
+}
