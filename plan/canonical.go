@@ -258,9 +258,16 @@ func canonRule(r Rule) map[string]any {
 	case RuleRejectIfSimplerIsClose:
 		o := map[string]any{"max_difference": r.MaxDifference}
 		if r.Grid != nil {
-			g := map[string][]float64{}
+			g := map[string]any{}
 			for _, ax := range r.Grid {
-				g[ax.Predictor] = ax.Values
+				switch {
+				case ax.AllLevels:
+					g[ax.Predictor] = GridAllLevels
+				case ax.Levels != nil:
+					g[ax.Predictor] = ax.Levels
+				default:
+					g[ax.Predictor] = ax.Values
+				}
 			}
 			o["grid"] = g
 		}

@@ -6,6 +6,7 @@ import (
 	"slices"
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/runner/fit"
 )
 
@@ -68,11 +69,12 @@ func (d *decoder) checkRules(p *Plan) {
 			if d.predictorsKnown(p) {
 				for _, ax := range r.Grid {
 					key := childPath(at+".grid", ax.Predictor)
-					switch {
-					case !slices.Contains(p.SourceColumns(), ax.Predictor):
+					if !slices.Contains(p.SourceColumns(), ax.Predictor) {
 						d.errAt(key, "%s is not a column the predictors read (%s)", quote(ax.Predictor), strings.Join(p.SourceColumns(), ", "))
-					case p.categorical(ax.Predictor) != nil:
-						d.errAt(key, "%s", gridCategorical(ax.Predictor))
+						continue
+					}
+					if c := p.categorical(ax.Predictor); c != nil && c.Levels != nil {
+						d.checkGridLevels(p, c, ax, key)
 					}
 				}
 			}
@@ -209,4 +211,44 @@ func plural(n int, one, many string) string {
 		return one
 	}
 	return many
+}
+
+// checkGridLevels refuses a level the grid lists for a categorical column
+// that is not one of its declared levels (with the nearest names), is
+// listed twice, or is one the subset leaves out (no row used has it).
+func (d *decoder) checkGridLevels(p *Plan, c *CategoricalColumn, ax GridAxis, key string) {
+	seen := map[string]bool{}
+	for j, l := range ax.Levels {
+		ip := itemPath(key, j)
+		if len(ax.Levels) == 1 && d.nodes[ip] == nil {
+			ip = key // one level written without a list
+		}
+		switch {
+		case !slices.Contains(c.Levels, l):
+			msg := fmt.Sprintf("%s is not a level of %s (%s.levels: %s)", quote(l), quote(ax.Predictor), c.Key, strings.Join(c.Levels, ", "))
+			if near := words.Nearest(l, c.Levels, 3); len(near) > 0 {
+				q := make([]string, len(near))
+				for i, n := range near {
+					q[i] = quote(n)
+				}
+				msg += "; nearest levels: " + strings.Join(q, ", ")
+			}
+			if l == GridAllLevels {
+				msg += fmt.Sprintf("; in a list, %s names a level: write %s: %s, without brackets, for every level", GridAllLevels, ax.Predictor, GridAllLevels)
+			}
+			d.errAt(ip, "%s", msg)
+		case seen[l]:
+			d.errAt(ip, "the level %s is listed twice: each level is one point of the grid; list it once", quote(l))
+		case d.clean("subset") && excludedBy(p, ax.Predictor, l) != nil:
+			sc := excludedBy(p, ax.Predictor, l)
+			var kept []string
+			for _, k := range c.Levels {
+				if excludedBy(p, ax.Predictor, k) == nil {
+					kept = append(kept, k)
+				}
+			}
+			d.errAt(ip, "%s is a level the subset leaves out (%s: %s): no row used has it, so the models have no effect of it to compare; give levels the rows used have (%s), or %s", quote(l), sc.Key, sc.String(), strings.Join(kept, ", "), GridAllLevels)
+		}
+		seen[l] = true
+	}
 }

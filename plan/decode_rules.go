@@ -195,13 +195,15 @@ func (m *mapping) atLeast(key string, lo float64, strict bool) (float64, bool) {
 	return f, true
 }
 
-// gridCategorical says why a categorical column has no place in a grid.
-func gridCategorical(col string) string {
-	return quote(col) + " is declared categorical; the grid gives values of numeric columns only and holds each categorical column at its reference level: remove it from the grid"
+// gridCategoricalWant is what a grid takes for a categorical column.
+func gridCategoricalWant(col string) string {
+	return fmt.Sprintf("%s is categorical: give %s (%s: %s, every level the rows used have), one of its levels, or a list of its levels", quote(col), GridAllLevels, col, GridAllLevels)
 }
 
 // decodeGrid reads a grid of prediction points: a mapping of predictor to
-// a non-empty list of numbers, in plan order.
+// a non-empty list of numbers (a numeric column) or to all, a level or a
+// list of levels (a declared categorical column), in plan order. The
+// levels are checked against the declared ones by checkRules.
 func (d *decoder) decodeGrid(n *yaml.Node, path string) []GridAxis {
 	n = deref(n)
 	if n == nil {
@@ -222,8 +224,11 @@ func (d *decoder) decodeGrid(n *yaml.Node, path string) []GridAxis {
 			continue
 		}
 		seen[k.Value] = true
+		ax := GridAxis{Predictor: k.Value, Key: kp, Line: k.Line, Col: k.Column}
 		if d.categorical[k.Value] {
-			d.errorf(k, kp, "%s", gridCategorical(k.Value))
+			if ax, ok := d.gridLevels(ax, deref(v), k); ok {
+				out = append(out, ax)
+			}
 			continue
 		}
 		items, ok := d.list(v, kp)
@@ -234,7 +239,6 @@ func (d *decoder) decodeGrid(n *yaml.Node, path string) []GridAxis {
 			d.errorf(deref(v), kp, "list is empty; give at least one value")
 			continue
 		}
-		ax := GridAxis{Predictor: k.Value}
 		for j, it := range items {
 			if f, ok := d.number(it, itemPath(kp, j)); ok {
 				ax.Values = append(ax.Values, f)
@@ -243,4 +247,50 @@ func (d *decoder) decodeGrid(n *yaml.Node, path string) []GridAxis {
 		out = append(out, ax)
 	}
 	return out
+}
+
+// gridLevels reads the grid's value for a categorical column: all, one
+// level, or a list of levels (numbers and booleans as written, as
+// categorical.COLUMN.levels lists them). Anything else is refused once,
+// at the column's key (P41).
+func (d *decoder) gridLevels(ax GridAxis, v, key *yaml.Node) (GridAxis, bool) {
+	kp := ax.Key
+	switch {
+	case v != nil && v.Kind == yaml.ScalarNode && v.ShortTag() != "!!null" && v.Value == GridAllLevels:
+		ax.AllLevels = true
+		return ax, true
+	case v != nil && v.Kind == yaml.ScalarNode && v.ShortTag() != "!!null":
+		if l, ok := d.name(v, kp); ok {
+			ax.Levels = []string{l}
+			return ax, true
+		}
+		return ax, false
+	case v != nil && v.Kind == yaml.SequenceNode && len(v.Content) > 0:
+		ok := true
+		for j, it := range v.Content {
+			ip := itemPath(kp, j)
+			d.record(ip, it)
+			if it := deref(it); it == nil || it.Kind != yaml.ScalarNode || it.ShortTag() == "!!null" {
+				d.errorf(it, ip, "%s; got %s", gridCategoricalWant(ax.Predictor), describe(it))
+				ok = false
+				continue
+			}
+			l, lok := d.name(it, ip)
+			if !lok {
+				ok = false
+				continue
+			}
+			ax.Levels = append(ax.Levels, l)
+		}
+		return ax, ok
+	}
+	at, got := v, describe(v)
+	if at == nil {
+		at = key
+	}
+	if v != nil && v.Kind == yaml.SequenceNode {
+		got = "an empty list"
+	}
+	d.errorf(at, kp, "%s; got %s", gridCategoricalWant(ax.Predictor), got)
+	return ax, false
 }

@@ -197,11 +197,26 @@ type Rule struct {
 }
 
 // GridAxis is one predictor of a grid of prediction points and its values;
-// predictors the grid leaves out are held at their means.
+// predictors the grid leaves out are held at their means (numeric) or
+// reference levels (categorical).
 type GridAxis struct {
 	Predictor string
-	Values    []float64
+	Values    []float64 // a numeric column's values
+	// A categorical column: the levels listed, or with AllLevels every
+	// level the rows used have (Levels nil).
+	Levels    []string
+	AllLevels bool
+	Key       string // the plan key of the axis (rules[i].KIND.grid.COLUMN)
+	Line, Col int    // where the axis's column is named in the plan
 }
+
+// Categorical reports whether the axis gives levels of a categorical
+// column.
+func (ax GridAxis) Categorical() bool { return ax.AllLevels || ax.Levels != nil }
+
+// GridAllLevels is the grid's word for every level of a categorical
+// column.
+const GridAllLevels = "all"
 
 // Rule kinds.
 const (

@@ -3,7 +3,9 @@ package runner
 import (
 	"errors"
 	"fmt"
+	"slices"
 	"strconv"
+	"strings"
 
 	"ordplan/plan"
 	"ordplan/runner/data"
@@ -380,6 +382,35 @@ func (a *Analysis) FewClusters(r Reading, ds *data.Dataset) string {
 func (a *Analysis) CheckDesign(r Reading, dz *design.Design, d *fit.Data) error {
 	if err := fit.CheckDesign(d); err != nil {
 		return a.designError(r, dz, err, "")
+	}
+	return a.checkGridLevels(r, dz)
+}
+
+// checkGridLevels refuses a level that a closeness rule's grid lists and
+// that no row used has (its column dropped: unobserved: drop), so that a
+// run stops before fitting rather than leave the rule unjudged. The plan's
+// check has refused levels that are not declared or that the subset
+// leaves out.
+func (a *Analysis) checkGridLevels(r Reading, dz *design.Design) error {
+	var errs plan.Errors
+	for _, rule := range a.Rules {
+		for _, ax := range rule.Grid {
+			s := dz.Source(ax.Predictor)
+			if s < 0 || dz.Sources[s].Cat == nil || ax.Levels == nil {
+				continue
+			}
+			kept, _ := dz.Coded(s)
+			for _, l := range ax.Levels {
+				if kept != nil && !slices.Contains(kept, l) {
+					errs = append(errs, &plan.Error{File: a.Source, Line: ax.Line, Col: ax.Col, Key: ax.Key,
+						Msg: fmt.Sprintf("level %q of %s occurs in no row used (data %s, outcome %q; its column was dropped: unobserved: drop), so the models have no effect of it to compare; list the levels the rows used have (%s), or give %s: %s",
+							l, ax.Predictor, a.DataFile, r.Outcome, strings.Join(kept, ", "), ax.Predictor, plan.GridAllLevels)})
+				}
+			}
+		}
+	}
+	if len(errs) > 0 {
+		return errs
 	}
 	return nil
 }

@@ -271,7 +271,14 @@ func (an *Analysis) DescribeRule(r plan.Rule) string {
 		if r.Grid != nil {
 			var ax []string
 			for _, a := range r.Grid {
-				ax = append(ax, a.Predictor+" in {"+joinNums(a.Values)+"}")
+				switch {
+				case a.AllLevels:
+					ax = append(ax, a.Predictor+" at every level the rows used have")
+				case a.Levels != nil:
+					ax = append(ax, a.Predictor+" in {"+strings.Join(a.Levels, ", ")+"}")
+				default:
+					ax = append(ax, a.Predictor+" in {"+joinNums(a.Values)+"}")
+				}
 			}
 			where = "over the grid " + strings.Join(ax, " x ") + " (other numeric columns at their means, categorical ones at their reference level)"
 		}
@@ -625,37 +632,31 @@ func (env *ruleEnv) points(r plan.Rule) ([]float64, []float64, pointSet, error) 
 		}}, nil
 	}
 	// Raw rows: every source at its mean (numeric) or reference level
-	// (categorical), then the grid's values; the design maps them to the
-	// fit's columns.
+	// (categorical), then the grid's values (a categorical column's level
+	// indexes); the design maps them to the fit's columns.
 	dz := env.or.Design
 	base := env.or.representative(nil, false)
 	S := len(base)
-	idx := make([]int, len(r.Grid))
-	for a, ax := range r.Grid {
-		idx[a] = dz.Source(ax.Predictor)
-		if idx[a] < 0 {
-			return nil, nil, pointSet{}, fmt.Errorf("grid column %q is not read by the predictors", ax.Predictor)
-		}
-		if dz.Sources[idx[a]].Cat != nil {
-			return nil, nil, pointSet{}, fmt.Errorf("grid column %q is categorical; the grid takes numeric columns", ax.Predictor)
-		}
+	axes, err := env.gridAxes(r.Grid)
+	if err != nil {
+		return nil, nil, pointSet{}, err
 	}
 	n := 1
-	for _, ax := range r.Grid {
-		n *= len(ax.Values)
+	for _, ax := range axes {
+		n *= len(ax.raw)
 	}
 	raw := make([]float64, 0, n*S)
 	labels := make([]string, 0, n)
 	for i := 0; i < n; i++ {
 		x := append([]float64(nil), base...)
 		rest := i
-		var lab []string
-		for a := len(r.Grid) - 1; a >= 0; a-- {
-			ax := r.Grid[a]
-			v := ax.Values[rest%len(ax.Values)]
-			rest /= len(ax.Values)
-			x[idx[a]] = v
-			lab = append([]string{ax.Predictor + " = " + numfmt.Num(v)}, lab...)
+		lab := make([]string, len(axes))
+		for a := len(axes) - 1; a >= 0; a-- {
+			ax := axes[a]
+			k := rest % len(ax.raw)
+			rest /= len(ax.raw)
+			x[ax.source] = ax.raw[k]
+			lab[a] = ax.name + " = " + ax.text[k]
 		}
 		raw = append(raw, x...)
 		labels = append(labels, strings.Join(lab, ", "))
@@ -672,7 +673,67 @@ func (env *ruleEnv) points(r plan.Rule) ([]float64, []float64, pointSet, error) 
 			off[i] = m
 		}
 	}
-	return X, off, pointSet{desc: fmt.Sprintf("over the %d grid points", n), point: func(i int) string { return labels[i] }}, nil
+	desc := fmt.Sprintf("over the %d grid points", n)
+	if slices.ContainsFunc(r.Grid, plan.GridAxis.Categorical) {
+		desc += " (every combination of the grid's levels and values)"
+	}
+	return X, off, pointSet{desc: desc, point: func(i int) string { return labels[i] }}, nil
+}
+
+// gridAxis is one axis of a closeness rule's grid as the design reads
+// it: the raw values (numbers, or a categorical column's level indexes)
+// and their texts.
+type gridAxis struct {
+	name   string
+	source int
+	raw    []float64
+	text   []string
+}
+
+// gridAxes reads the rule's grid against the outcome's design: a
+// categorical column's levels (all: the levels the design codes, those of
+// the rows used) become level indexes; a listed level no row used has
+// (its column dropped) is refused here as in the design's words.
+func (env *ruleEnv) gridAxes(grid []plan.GridAxis) ([]gridAxis, error) {
+	dz := env.or.Design
+	var out []gridAxis
+	for _, ax := range grid {
+		s := dz.Source(ax.Predictor)
+		if s < 0 {
+			return nil, fmt.Errorf("grid column %q is not read by the predictors", ax.Predictor)
+		}
+		g := gridAxis{name: ax.Predictor, source: s}
+		cat := dz.Sources[s].Cat
+		switch {
+		case cat == nil && ax.Categorical():
+			return nil, fmt.Errorf("grid column %q is numeric; the grid gives it levels", ax.Predictor)
+		case cat == nil:
+			for _, v := range ax.Values {
+				g.raw = append(g.raw, v)
+				g.text = append(g.text, numfmt.Num(v))
+			}
+		case !ax.Categorical():
+			return nil, fmt.Errorf("grid column %q is categorical; the grid gives it numbers", ax.Predictor)
+		default:
+			levels := ax.Levels
+			if ax.AllLevels {
+				levels, _ = dz.Coded(s)
+				if levels == nil {
+					levels = cat.Levels
+				}
+			}
+			for _, l := range levels {
+				i := dz.Level(s, l)
+				if i < 0 {
+					return nil, fmt.Errorf("grid column %q: %q is not one of its levels", ax.Predictor, l)
+				}
+				g.raw = append(g.raw, float64(i))
+				g.text = append(g.text, l)
+			}
+		}
+		out = append(out, g)
+	}
+	return out, nil
 }
 
 func (env *ruleEnv) cachedProbs(f *FitEntry, X, off []float64) ([]float64, error) {

@@ -701,9 +701,37 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{"huge.yaml: has 4194305 bytes; a plan is a short text file of at most 4194304 bytes"}},
 		{id: "P40", name: "a YAML date where a number is needed", args: []string{"check"}, plan: edit("{by: aic}", "{by: aic, margin: 2024-01-01}"), code: 1,
 			want: []string{`P40.yaml:13:31: rules[1].choose.margin: want a number >= 0, got the date "2024-01-01"`}},
-		{id: "P41", name: "a grid naming a categorical column", args: []string{"check"},
-			plan: edit("predictors: [a, b]", "categorical:\n  b: {levels: [\"0\", \"1\"]}\npredictors: [a, b]", "reject_unconverged: true", "reject_if_simpler_is_close: {max_difference: 0.05, grid: {b: [1]}}"), code: 1,
-			want: []string{`P41.yaml:14:63: rules[0].reject_if_simpler_is_close.grid.b: "b" is declared categorical; the grid gives values of numeric columns only and holds each categorical column at its reference level: remove it from the grid`}},
+		{id: "P41", name: "a grid giving a categorical column something other than all or its levels", args: []string{"check", "--no-data"},
+			plan: edit("predictors: [a, b]", "categorical:\n  b: {levels: [\"0\", \"1\"]}\npredictors: [a, b]", "reject_unconverged: true", "reject_if_simpler_is_close: {max_difference: 0.05, grid: {b: {\"1\": 2}}}"), code: 1,
+			want: []string{`P41.yaml:14:66: rules[0].reject_if_simpler_is_close.grid.b: "b" is categorical: give all (b: all, every level the rows used have), one of its levels, or a list of its levels; got a mapping`}},
+		{id: "P50", name: "a grid naming levels a categorical column does not have, or a level twice", args: []string{"check", "--no-data"},
+			plan: edit("predictors: [a, b]", "categorical:\n  b: {levels: [low, high]}\npredictors: [a, b]", "reject_unconverged: true", "reject_if_simpler_is_close: {max_difference: 0.05, grid: {a: [0, 1], b: [hgih, low, low, all]}}"), code: 1, lines: true,
+			want: []string{`P50.yaml:14:78: rules[0].reject_if_simpler_is_close.grid.b[0]: "hgih" is not a level of "b" (categorical.b.levels: low, high); nearest levels: "high"`,
+				`P50.yaml:14:89: rules[0].reject_if_simpler_is_close.grid.b[2]: the level "low" is listed twice: each level is one point of the grid; list it once`,
+				`P50.yaml:14:94: rules[0].reject_if_simpler_is_close.grid.b[3]: "all" is not a level of "b" (categorical.b.levels: low, high); in a list, all names a level: write b: all, without brackets, for every level`}},
+		{id: "P51", name: "a grid naming a level no row used has: left out by the subset, or dropped from the data", args: []string{"check", "--no-data"},
+			plan: edit("predictors: [a, b]", "categorical:\n  b: {levels: [\"0\", \"1\", \"2\"], unobserved: drop}\npredictors: [a, b]", "reject_unconverged: true", "reject_if_simpler_is_close: {max_difference: 0.05, grid: {b: [\"1\", \"2\"]}}") + "subset:\n  - {column: b, none_of: [\"2\"]}\n", code: 1,
+			want: []string{`P51.yaml:14:72: rules[0].reject_if_simpler_is_close.grid.b[1]: "2" is a level the subset leaves out (subset[0]: b not in {2}): no row used has it, so the models have no effect of it to compare; give levels the rows used have (0, 1), or all`},
+			check: func(t *testing.T, dir, out, errs string) {
+				// Without the subset, only the data show that no row has
+				// the level: check (with the data) and run refuse it
+				// before any fit, at the grid's key.
+				src, _ := os.ReadFile(filepath.Join(dir, "P51.yaml"))
+				p := filepath.Join(dir, "P51-drop.yaml")
+				os.WriteFile(p, []byte(strings.Split(string(src), "subset:")[0]), 0o644)
+				if o, e, code := runCLI("check", "--no-data", p); code != 0 {
+					t.Errorf("check --no-data: exit %d: %s%s", code, o, e)
+				}
+				want := `P51-drop.yaml:14:63: rules[0].reject_if_simpler_is_close.grid.b: level "2" of b occurs in no row used (data d.csv, outcome "y"; its column was dropped: unobserved: drop), so the models have no effect of it to compare; list the levels the rows used have (0, 1), or give b: all`
+				for _, cmd := range []string{"check", "run"} {
+					if _, e, code := runCLI(cmd, p); code != 1 || !strings.Contains(e, want) {
+						t.Errorf("%s: exit %d: %s\nwant %s", cmd, code, e, want)
+					}
+				}
+				if _, err := os.Stat(filepath.Join(dir, "out")); err == nil {
+					t.Errorf("run wrote outputs")
+				}
+			}},
 
 		// Multiply imputed data.
 		{id: "I1", name: "imputation numbers with a gap", args: []string{"run"}, setup: imputedFiles,
