@@ -500,6 +500,7 @@ func (d *decoder) checkAssumptions(p *Plan) {
 	d.checkGenerator(p)
 	d.checkCorrelations(p)
 	d.checkMissing(p)
+	d.checkSimulatedWeights(p)
 	seen := map[string]bool{}
 	for i := range a.Outcomes {
 		oa := &a.Outcomes[i]
@@ -908,4 +909,40 @@ func (e Effect) canonical() any {
 		return map[string]any{"at": e.At, "values": e.Values}
 	}
 	return e.Number
+}
+
+// checkSimulatedWeights refuses a weights column that the simulation
+// would draw from dictionary values or a range below 0 (A24): the
+// simulation draws it from those (runner/simulate's prepareWeights) unless
+// the predictors or the subset read it, and a weight is zero or more.
+func (d *decoder) checkSimulatedWeights(p *Plan) {
+	w := p.Data.Weights
+	e := p.EntryOf(w)
+	if w == "" || e == nil || !d.clean(e.Key) || p.CategoricalOf(w) != nil {
+		return
+	}
+	if slices.ContainsFunc(p.UsedColumns(), func(u UsedColumn) bool {
+		return u.Column == w && (u.Role == RolePredictor || u.Role == RoleSubset)
+	}) {
+		return
+	}
+	var key, what string
+	switch {
+	case e.Values != nil:
+		low := math.Inf(1)
+		for _, v := range e.Values {
+			if x, err := strconv.ParseFloat(v, 64); err == nil {
+				low = math.Min(low, x)
+			}
+		}
+		key, what = e.Key+".values", fmt.Sprintf("values, which include %g", low)
+		if !(low < 0) {
+			return
+		}
+	case e.Range != nil && e.Range[0] < 0:
+		key, what = e.Key+".range", fmt.Sprintf("range, which starts below 0 (%g)", e.Range[0])
+	default:
+		return
+	}
+	d.errAt(key, "the simulated weights (data.weights: %s) are drawn from the dictionary's %s, but a weight is zero or more: give %s values or a range of zero or more", w, what, e.Key)
 }

@@ -2,8 +2,11 @@ package runner
 
 import (
 	"fmt"
+	"slices"
 
 	"ordplan/plan"
+	"ordplan/runner/design"
+	"ordplan/runner/fit"
 )
 
 // CheckData checks a plan against its data file: the file reads, every
@@ -65,5 +68,72 @@ func FewClustersWarnings(res *Result) []string {
 			out = append(out, fmt.Sprintf("outcome %s: %s", an.Outcomes[i].Outcome, w))
 		}
 	}
+	return out
+}
+
+// NotCheckedWithoutData lists, sorted, what `ordplan check` checks only
+// with the data (the plan's check of the data file's columns, and
+// CheckData) and so leaves out under --no-data, for the features p uses:
+// each item begins with the plan key it concerns. Keep it in step with
+// CheckData.
+func NotCheckedWithoutData(p *plan.Plan) []string {
+	file := "data.file: the data file opens and holds every column the plan names (its delimiter and decimal mark checked)"
+	if p.Data.Parts != nil {
+		file = "data.parts: every part opens and holds every column the plan names, the same columns in every part (the delimiter and decimal mark checked)"
+	}
+	out := []string{
+		file,
+		"data: every used cell reads as its column's kind (numbers, declared levels, outcome categories), and missing values are as data.missing says",
+		"outcomes: the categories the rows used have (a declared category no row has is refused; at least two are needed)",
+		"predictors: constant or collinear design columns (the rank of each outcome's design on the rows used)",
+	}
+	if p.Data.Weights != "" {
+		out = append(out, "data.weights: every weight is a number of zero or more")
+	}
+	if p.Data.Cluster != "" {
+		out = append(out, fmt.Sprintf("data.cluster: the number of clusters in the rows used (fewer than %d gives a warning: cluster-robust errors too small, joint Wald tests of more than G-1 restrictions not computed)", fit.FewClusters))
+	}
+	if p.Data.Imputed != nil {
+		out = append(out, "data.imputed: the imputed sets against the data file (their rows, columns and the values the data observe)")
+	}
+	if len(p.Dictionary) > 0 {
+		out = append(out, "dictionary: the data's values against the declared ranges, values and missing-value codes")
+	}
+	if len(p.Categorical) > 0 {
+		out = append(out, "categorical: values that are not declared levels, and declared levels no row used has (unobserved: refuse stops, drop removes the level's column)")
+	}
+	if len(p.Subset) > 0 {
+		out = append(out, "subset: the values its conditions name against those the rows hold, and the rows it keeps")
+	}
+	knots, quantiles := false, false
+	terms := [][]design.TermSpec{p.Terms}
+	for _, o := range p.Outcomes {
+		terms = append(terms, o.Terms)
+	}
+	for _, ts := range terms {
+		for _, t := range ts {
+			knots = knots || t.Knots != nil
+			quantiles = quantiles || t.Quantiles != nil
+		}
+	}
+	if knots {
+		out = append(out, "predictors: spline knots given as values against the range of the rows used")
+	}
+	if quantiles {
+		out = append(out, "predictors: spline knots at quantiles that tie in the rows used")
+	}
+	if len(p.Inference.Hypotheses) > 0 {
+		out = append(out, "inference.hypotheses: the boundaries and level columns that the data's categories and levels give the models")
+	}
+	if p.Inference.PredictPath != "" {
+		out = append(out, "inference.predict: the new rows read through each outcome's design (undeclared levels, levels no row used has, values a transformation cannot take)")
+	}
+	for _, r := range p.Rules {
+		if slices.ContainsFunc(r.Grid, func(ax plan.GridAxis) bool { return ax.Levels != nil }) {
+			out = append(out, "rules: the levels a closeness rule's grid lists that no row used has (unobserved: drop)")
+			break
+		}
+	}
+	slices.Sort(out)
 	return out
 }

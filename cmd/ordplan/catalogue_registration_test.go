@@ -175,10 +175,19 @@ func registrationItems() []badInput {
 			want: []string{`assumptions.missing.b: the assumptions make "b" missing, but data.missing is refuse, so a run stops at the first missing value: every simulated data set would stop there; handle the missing values (data.missing: drop or impute) or state none (proportion: 0)`}},
 		{id: "A24", name: "simulated weights drawn from a dictionary range below 0", args: []string{"power", "--n", "100", "--replicates", "2"}, code: 1,
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  weights: w\n") + "dictionary:\n  a: {label: A}\n  b: {label: B}\n  w: {range: [-1, 3]}\n" + assumed("{a: 0.2}", ""),
-			want: []string{`A24.yaml: dictionary.w: the simulated weights (data.weights: w) are drawn from the dictionary's range, which starts below 0 (-1), but a weight is zero or more: give dictionary.w values or a range of zero or more`}},
+			want: []string{`A24.yaml:18:14: dictionary.w.range: the simulated weights (data.weights: w) are drawn from the dictionary's range, which starts below 0 (-1), but a weight is zero or more: give dictionary.w values or a range of zero or more`},
+			check: func(t *testing.T, dir, out, errs string) {
+				// The plan alone shows it: check refuses it with and
+				// without the data.
+				for _, args := range [][]string{{"check", "--no-data"}, {"check"}} {
+					if _, e, code := runCLI(append(args, filepath.Join(dir, "A24.yaml"))...); code != 1 || !strings.Contains(e, "A24.yaml:18:14: dictionary.w.range: the simulated weights") {
+						t.Errorf("%v: exit %d: %s", args, code, e)
+					}
+				}
+			}},
 		{id: "A24", name: "simulated weights drawn from dictionary values below 0", args: []string{"rehearse"}, code: 1,
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  weights: w\n") + "dictionary:\n  a: {label: A}\n  b: {label: B}\n  w: {values: [2, -0.5, 1]}\n" + assumed("{a: 0.2}", ""),
-			want: []string{`dictionary.w: the simulated weights (data.weights: w) are drawn from the dictionary's values, which include -0.5, but a weight is zero or more`}},
+			want: []string{`A24.yaml:18:15: dictionary.w.values: the simulated weights (data.weights: w) are drawn from the dictionary's values, which include -0.5, but a weight is zero or more`}},
 		{id: "R5", name: "ordplan init over an existing file", args: []string{"init", "--header", "y,a"}, plan: goodPlan, code: 1,
 			want: []string{"init: R5.yaml already exists; ordplan init never overwrites a file"},
 			check: func(t *testing.T, dir, out, errs string) {

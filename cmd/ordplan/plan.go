@@ -77,6 +77,14 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 	for _, s := range runner.DescribeRules(p) {
 		fmt.Fprintln(stdout, "  "+s)
 	}
+	if *noData {
+		// Last, so that a clean check of the plan alone is not read as
+		// a check of the data.
+		fmt.Fprintf(stdout, "Not checked without the data (run ordplan check %s without --no-data once the data file exists):\n", p.Path)
+		for _, s := range runner.NotCheckedWithoutData(p) {
+			fmt.Fprintln(stdout, "  - "+s)
+		}
+	}
 	return exitOK
 }
 

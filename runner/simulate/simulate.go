@@ -161,7 +161,8 @@ func New(p *plan.Plan) (*Sim, error) {
 
 // prepareWeights says how the weights column is drawn: from the
 // dictionary's values or range when it states one (each row
-// independently of every other column), else 1 in every row.
+// independently of every other column), else 1 in every row. The plan's
+// check has refused values or a range below 0 (A24, checkSimulatedWeights).
 func (s *Sim) prepareWeights() error {
 	p, w := s.Plan, s.Weights
 	if w == "" || slices.ContainsFunc(s.Predictors, func(pr Predictor) bool { return pr.Column == w }) {
@@ -175,18 +176,7 @@ func (s *Sim) prepareWeights() error {
 	if err != nil {
 		return err
 	}
-	var low float64
-	var what string
-	if pr.Kind == "uniform" {
-		low = pr.Range[0]
-		what = fmt.Sprintf("range, which starts below 0 (%g)", low)
-	} else {
-		low = slices.Min(pr.Numbers)
-		what = fmt.Sprintf("values, which include %g", low)
-	}
-	if low < 0 {
-		return fmt.Errorf("%s: dictionary.%s: the simulated weights (data.weights: %s) are drawn from the dictionary's %s, but a weight is zero or more: give dictionary.%s values or a range of zero or more", p.Path, w, w, what, w)
-	}
+	// A range or values below 0 are refused by the plan's check (A24).
 	s.weight = &pr
 	return nil
 }
