@@ -494,6 +494,15 @@ func (d *decoder) checkAssumptions(p *Plan) {
 			}
 		} else if p.CategoricalOf(pa.Column) != nil {
 			d.errAt(pa.Key, "%s is categorical: give proportions over its levels, not mean and sd", quote(pa.Column))
+		} else if e := p.EntryOf(pa.Column); pa.SD > 0 && e != nil && e.Values == nil && e.Range != nil {
+			// Drawn from the normal truncated to the range (draws outside
+			// it drawn again): refused when the range holds less than
+			// half of the normal, whose stated mean and sd would then
+			// describe another column than the one drawn.
+			if t := TruncatedNormal(pa.Mean, pa.SD, e.Range[0], e.Range[1]); t.Outside > MaxOutsideRange {
+				d.errAt(pa.Key, "a normal distribution with mean %g and sd %g lies within %s's range [%g, %g] in the dictionary (%s.range) only %s of the time: draws outside it are drawn again, so the column drawn would have mean %.4g and sd %.4g, not the mean and sd stated; state a mean and sd whose normal the range holds at least half of, or widen the range",
+					pa.Mean, pa.SD, quote(pa.Column), e.Range[0], e.Range[1], e.Key, percentText(1-t.Outside), t.Mean, t.SD)
+			}
 		}
 	}
 	d.checkTransforms(p)
@@ -945,4 +954,53 @@ func (d *decoder) checkSimulatedWeights(p *Plan) {
 		return
 	}
 	d.errAt(key, "the simulated weights (data.weights: %s) are drawn from the dictionary's %s, but a weight is zero or more: give %s values or a range of zero or more", w, what, e.Key)
+}
+
+// MaxOutsideRange is the largest share of a stated normal distribution
+// that a column's dictionary range may leave out: the simulation draws the
+// column from the normal truncated to the range, drawing again what falls
+// outside, and beyond this share the stated mean lies at or beyond the
+// range's edge and the column drawn is another than the one stated.
+const MaxOutsideRange = 0.5
+
+// Truncation is a normal distribution truncated to a range: the share of
+// the normal outside the range, and the mean and standard deviation of
+// what is drawn within it.
+type Truncation struct {
+	Outside  float64
+	Mean, SD float64
+}
+
+// TruncatedNormal is the normal with mean mu and standard deviation sd
+// truncated to [lo, hi]: with a = (lo - mu)/sd, b = (hi - mu)/sd and Z =
+// Phi(b) - Phi(a) the share within, the truncated mean is mu + sd (phi(a)
+// - phi(b))/Z and the variance sd^2 (1 + (a phi(a) - b phi(b))/Z - ((phi(a)
+// - phi(b))/Z)^2). The tails are computed as tails (erfc), so a share far
+// out keeps its digits.
+func TruncatedNormal(mu, sd, lo, hi float64) Truncation {
+	a, b := (lo-mu)/sd, (hi-mu)/sd
+	below := 0.5 * math.Erfc(-a/math.Sqrt2) // Phi(a)
+	above := 0.5 * math.Erfc(b/math.Sqrt2)  // 1 - Phi(b)
+	z := 1 - below - above
+	if z <= 0 {
+		return Truncation{Outside: 1, Mean: math.NaN(), SD: math.NaN()}
+	}
+	phi := func(x float64) float64 { return math.Exp(-x*x/2) / math.Sqrt(2*math.Pi) }
+	pa, pb := phi(a), phi(b)
+	ta, tb := a*pa, b*pb
+	if math.IsInf(a, 0) {
+		ta = 0
+	}
+	if math.IsInf(b, 0) {
+		tb = 0
+	}
+	m := (pa - pb) / z
+	v := 1 + (ta-tb)/z - m*m
+	return Truncation{Outside: below + above, Mean: mu + sd*m, SD: sd * math.Sqrt(math.Max(v, 0))}
+}
+
+// percentText writes a share as a percentage with three significant
+// digits.
+func percentText(x float64) string {
+	return strconv.FormatFloat(100*x, 'g', 3, 64) + "%"
 }

@@ -51,6 +51,9 @@ func PowerOutputs(pr *simulate.PowerResult, reg *lock.Status) (map[string][]byte
 	if pr.Weights != nil {
 		d.p("%s", simulatedWeightsText(pr.Weights))
 	}
+	if len(pr.Truncated) > 0 {
+		d.p("%s", simulatedTruncationText(pr.Truncated))
+	}
 	writePowerSizes(d, pr)
 	d.p("Every rate is a share of the %d replicates of a size, with its Monte Carlo standard error sqrt(p(1-p)/R) in brackets.", pr.Replicates)
 	for _, op := range pr.Outcomes {

@@ -34,6 +34,32 @@ func writeSimulated(d *doc, r *runner.Result) {
 	if s.Weights != nil {
 		d.p("%s", simulatedWeightsText(s.Weights))
 	}
+	if len(s.Truncated) > 0 {
+		d.p("%s", simulatedTruncationText(s.Truncated))
+	}
+}
+
+// simulatedTruncationText says which numeric columns were drawn from
+// their stated normal distribution truncated to the dictionary's range,
+// how much of it the range leaves out, how many draws were drawn again
+// (a rehearsal's counts), and the mean and sd of the column drawn.
+func simulatedTruncationText(ts []runner.SimulatedTruncation) string {
+	g := func(x float64) string { return strconv.FormatFloat(x, 'g', 4, 64) }
+	share := func(x float64) string { return strconv.FormatFloat(100*x, 'g', 3, 64) + "%" }
+	var cols []string
+	for _, t := range ts {
+		c := fmt.Sprintf("%s (mean %s, sd %s, range [%s, %s]): %s of the normal lies outside the range", mdCode(t.Column),
+			strconv.FormatFloat(t.StatedMean, 'g', -1, 64), strconv.FormatFloat(t.StatedSD, 'g', -1, 64),
+			strconv.FormatFloat(t.Range[0], 'g', -1, 64), strconv.FormatFloat(t.Range[1], 'g', -1, 64), share(t.Outside))
+		switch {
+		case t.Copula:
+			c += "; drawn within the range by the truncated normal's quantile function, as its correlations are stated, so none was drawn again"
+		case t.Redrawn != nil && t.Drawn > 0:
+			c += fmt.Sprintf("; %d of the %d draws (%s) fell outside and were drawn again", *t.Redrawn, t.Drawn, share(float64(*t.Redrawn)/float64(t.Drawn)))
+		}
+		cols = append(cols, c+fmt.Sprintf("; the column drawn has mean %s and sd %s", g(t.Mean), g(t.SD)))
+	}
+	return "Numeric columns with a range in the dictionary were drawn from the stated normal distribution truncated to that range: a draw outside the range was drawn again, from the same seeded stream, so no simulated value lies outside it, and the column drawn has the mean and sd of the truncated normal, not quite those stated (a range that leaves out more than half of the normal is refused). " + strings.Join(cols, ". ") + "."
 }
 
 // simulatedWeightsText says how the plan's weights column was simulated

@@ -22,6 +22,31 @@ type Simulation struct {
 	// Weights says how the plan's weights column was simulated (nil:
 	// the plan has none).
 	Weights *SimulatedWeights `json:"weights,omitempty"`
+	// Truncated are the numeric columns drawn from a normal distribution
+	// truncated to their dictionary range, with the draws outside it that
+	// were drawn again.
+	Truncated []SimulatedTruncation `json:"truncated,omitempty"`
+}
+
+// SimulatedTruncation is a numeric column drawn from the normal of its
+// stated mean and sd truncated to its dictionary range: Outside is the
+// share of that normal outside the range (the share of draws expected to
+// be drawn again), Mean and SD those of the truncated normal (what the
+// column drawn has), Drawn and Redrawn (a rehearsal's data) the draws
+// made and, of them, those outside the range and drawn again; a column
+// drawn with stated correlations (Copula) is drawn within the range by
+// the truncated normal's quantile function, nothing drawn again.
+type SimulatedTruncation struct {
+	Column     string    `json:"column"`
+	StatedMean float64   `json:"stated_mean"`
+	StatedSD   float64   `json:"stated_sd"`
+	Range      []float64 `json:"range"`
+	Outside    float64   `json:"outside_share"`
+	Mean       float64   `json:"truncated_mean"`
+	SD         float64   `json:"truncated_sd"`
+	Copula     bool      `json:"copula,omitempty"`
+	Drawn      int       `json:"draws,omitempty"`
+	Redrawn    *int      `json:"redrawn,omitempty"`
 }
 
 // SimulatedWeights is how a plan's weights column was simulated: drawn

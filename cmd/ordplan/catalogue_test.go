@@ -732,6 +732,18 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("run wrote outputs")
 				}
 			}},
+		{id: "P52", name: "a normal predictor whose dictionary range leaves out more than half of it", args: []string{"check", "--no-data"},
+			plan: goodPlan + "dictionary:\n  a: {range: [1, 5]}\n  b: {label: B}\n" + assumed("{a: 0.2}", ""), code: 1,
+			want: []string{`P52.yaml:18:19: assumptions.predictors.a: a normal distribution with mean 0 and sd 1 lies within "a"'s range [1, 5] in the dictionary (dictionary.a.range) only 15.9% of the time: draws outside it are drawn again, so the column drawn would have mean 1.525 and sd 0.4462, not the mean and sd stated; state a mean and sd whose normal the range holds at least half of, or widen the range`},
+			check: func(t *testing.T, dir, out, errs string) {
+				// rehearse and power refuse it with the same line (once
+				// they drew it while more than 1% lay in the range).
+				for _, args := range [][]string{{"rehearse"}, {"power", "--n", "100", "--replicates", "2"}} {
+					if _, e, code := runCLI(append(args, filepath.Join(dir, "P52.yaml"))...); code != 1 || !strings.Contains(e, "only 15.9% of the time") {
+						t.Errorf("%v: exit %d: %s", args, code, e)
+					}
+				}
+			}},
 
 		// Multiply imputed data.
 		{id: "I1", name: "imputation numbers with a gap", args: []string{"run"}, setup: imputedFiles,

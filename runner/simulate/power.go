@@ -138,9 +138,12 @@ type PowerResult struct {
 	Missing []runner.SimulatedMissing `json:"missing,omitempty"`
 	// Weights says how the plan's weights column was simulated (nil: the
 	// plan has none).
-	Weights    *runner.SimulatedWeights `json:"weights,omitempty"`
-	Replicates int                      `json:"replicates"`
-	Alpha      float64                  `json:"alpha"`
+	Weights *runner.SimulatedWeights `json:"weights,omitempty"`
+	// Truncated are the normal columns drawn truncated to their
+	// dictionary range (without counts: they differ by replicate).
+	Truncated  []runner.SimulatedTruncation `json:"truncated,omitempty"`
+	Replicates int                          `json:"replicates"`
+	Alpha      float64                      `json:"alpha"`
 	// Multiplicity is the plan's correction of its hypotheses' p-values
 	// (inference.multiplicity: holm or benjamini_hochberg; "" for none):
 	// a hypothesis is rejected when its adjusted p-value is below Alpha,
@@ -207,6 +210,7 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 	}
 	res.Missing = sim.MissingRecord(nil, 0)
 	res.Weights = sim.WeightsRecord()
+	res.Truncated = sim.TruncationRecord(nil, 0)
 	res.SizeMeans = "rows drawn from the assumptions; every row is analysed (less any incomplete rows data.missing drops)"
 	if len(p.Subset) > 0 {
 		res.SizeMeans = "rows drawn from the assumptions, before the plan's subset: the rows analysed are those the subset keeps (subset_kept; less any incomplete rows data.missing drops)"

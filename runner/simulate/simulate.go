@@ -199,6 +199,27 @@ func (s *Sim) WeightsRecord() *runner.SimulatedWeights {
 	return rec
 }
 
+// TruncationRecord lists the normal columns drawn truncated to their
+// dictionary range; with w (a rehearsal's data, Sim.WriteCounted of n
+// rows) the draws made and those drawn again, outside the range.
+func (s *Sim) TruncationRecord(w *Written, n int) []runner.SimulatedTruncation {
+	var out []runner.SimulatedTruncation
+	for k, pr := range s.Predictors {
+		if pr.Kind != "normal" || pr.Range == nil {
+			continue
+		}
+		t := plan.TruncatedNormal(pr.Mean, pr.SD, pr.Range[0], pr.Range[1])
+		rec := runner.SimulatedTruncation{Column: pr.Column, StatedMean: pr.Mean, StatedSD: pr.SD, Range: slices.Clone(pr.Range),
+			Outside: t.Outside, Mean: t.Mean, SD: t.SD, Copula: slices.Contains(s.Correlated, k)}
+		if w != nil && k < len(w.Redrawn) {
+			redrawn := w.Redrawn[k]
+			rec.Drawn, rec.Redrawn = n+redrawn, &redrawn
+		}
+		out = append(out, rec)
+	}
+	return out
+}
+
 // GeneratingModel names the generating model in words, e.g. "cumulative
 // logit" or "stage (backward) probit".
 func (s *Sim) GeneratingModel() string {
@@ -517,14 +538,9 @@ func predictorOf(p *plan.Plan, col string) (Predictor, error) {
 			pr.Numbers = append(pr.Numbers, x)
 		}
 	case pa != nil && pa.SD > 0:
+		// Truncated to the range, if any: the plan's check has refused
+		// a range that leaves out more than plan.MaxOutsideRange of it.
 		pr.Kind, pr.Mean, pr.SD = "normal", pa.Mean, pa.SD
-		if r := pr.Range; r != nil {
-			// The chance that a draw falls in the range; refuse a range
-			// the distribution almost never reaches.
-			if normalCDF((r[1]-pa.Mean)/pa.SD)-normalCDF((r[0]-pa.Mean)/pa.SD) < 0.01 {
-				return pr, fmt.Errorf("%s: %s: a normal distribution with mean %g and sd %g falls in the dictionary's range [%g, %g] less than 1%% of the time", p.Path, pa.Key, pa.Mean, pa.SD, r[0], r[1])
-			}
-		}
 	case e != nil && e.Range != nil:
 		pr.Kind = "uniform"
 	default:
@@ -545,8 +561,10 @@ func predictorOf(p *plan.Plan, col string) (Predictor, error) {
 func normalCDF(z float64) float64 { return 0.5 * math.Erfc(-z/math.Sqrt2) }
 
 // draw gives one value of the predictor: its index among the levels (or
-// -1) and its number.
-func (pr *Predictor) draw(rng *rand.Rand) (int, float64) {
+// -1) and its number. A normal column with a range is drawn from the
+// normal truncated to the range: a draw outside it is drawn again, from
+// the same stream, and counted in redrawn (when not nil).
+func (pr *Predictor) draw(rng *rand.Rand, redrawn *int) (int, float64) {
 	switch pr.Kind {
 	case "levels":
 		return pr.fromUniform(rng.Float64())
@@ -555,6 +573,9 @@ func (pr *Predictor) draw(rng *rand.Rand) (int, float64) {
 			x := pr.Mean + pr.SD*rng.NormFloat64()
 			if pr.Range == nil || (x >= pr.Range[0] && x <= pr.Range[1]) {
 				return -1, x
+			}
+			if redrawn != nil {
+				*redrawn++
 			}
 		}
 	case "uniform":
@@ -606,11 +627,14 @@ type row struct {
 	x     []float64
 	cat   []bool
 	z     []float64 // scratch: the copula's normal scores
+	// redrawn counts, per predictor, the draws outside its range that
+	// were drawn again (Predictor.draw).
+	redrawn []int
 }
 
 func (s *Sim) newRow() row {
 	k := len(s.Predictors)
-	r := row{level: make([]int, k), x: make([]float64, k), cat: make([]bool, k), z: make([]float64, len(s.Correlated))}
+	r := row{level: make([]int, k), x: make([]float64, k), cat: make([]bool, k), z: make([]float64, len(s.Correlated)), redrawn: make([]int, k)}
 	for i, pr := range s.Predictors {
 		r.cat[i] = pr.Categorical
 	}
@@ -638,7 +662,7 @@ func (s *Sim) drawRow(rng *rand.Rand, r *row) {
 			next++
 			continue
 		}
-		r.level[k], r.x[k] = s.Predictors[k].draw(rng)
+		r.level[k], r.x[k] = s.Predictors[k].draw(rng, &r.redrawn[k])
 	}
 }
 
@@ -1011,6 +1035,9 @@ func (s *Sim) Write(w io.Writer, n int, replicate uint64) error {
 type Written struct {
 	Missing []int
 	Kept    int
+	// Redrawn counts, per predictor (Sim.Predictors), the draws of a
+	// normal column outside its range that were drawn again.
+	Redrawn []int
 }
 
 // WriteCounted is Write, giving also what it wrote (Written). The
@@ -1128,7 +1155,7 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) (Written, error
 		}
 		bw.WriteByte('\n')
 	}
-	return Written{Missing: counts, Kept: met}, bw.Flush()
+	return Written{Missing: counts, Kept: met, Redrawn: slices.Clone(r.redrawn)}, bw.Flush()
 }
 
 // drawWeight gives one row's weight as the file holds it: 1 when the
@@ -1138,7 +1165,7 @@ func (s *Sim) drawWeight(rng *rand.Rand) string {
 	if pr == nil {
 		return "1"
 	}
-	l, x := pr.draw(rng)
+	l, x := pr.draw(rng, nil)
 	if l >= 0 {
 		return csvCell(pr.Values[l])
 	}
