@@ -58,7 +58,8 @@ type LevelPairSet struct {
 // with the predictor at b less that with it at a, the other predictors at
 // the point of the marginal effects of the same kind (Effects.Kind: means,
 // profile; Effects.Point and PointLevels, where the paired column's own
-// entry is replaced by each level in turn). On imputed data pooled over
+// entry is replaced by each level in turn: its entry of PointLevels is
+// pairedLevel). On imputed data pooled over
 // the sets, each set at its own point, as those marginal effects are.
 type PairsAtPoint struct {
 	Effects MarginalSet `json:"effects"`
@@ -167,8 +168,15 @@ func pairSet(an *Analysis, or *OutcomeResult, res *fit.Result, kind string, s in
 	raw, off := or.atPoint(an.Inference.Profile, kind)
 	set := pairEffects(or, res, s, levels, raw, 1, off, nil, an.Level)
 	set.Kind, set.Point, set.PointLevels = kind, raw, or.levelsAt(raw)
+	// The paired column takes each level of a pair in turn: its entry in
+	// the point is no level of its own, and decisions.json says so.
+	set.PointLevels[s] = pairedLevel
 	return set
 }
+
+// pairedLevel stands, in PointLevels of pairs at a point, for the paired
+// column, which takes both levels of each pair.
+const pairedLevel = "(each level of the pair)"
 
 // pairsOf lists the pairs (a, b) of n levels, a before b, in order.
 func pairsOf(n int) [][2]int {

@@ -288,8 +288,9 @@ func TestLevelPairsIdentities(t *testing.T) {
 		}
 	}
 	// At the profile the pairs set type to each level, whatever level the
-	// profile gives it: the profile's atrium is not used.
-	if got := set.AtPoints[1].Effects.PointLevels[1]; got != "atrium" || set.AtPoints[1].Effects.Effects[0].Change != "tower to apartment" {
+	// profile gives it: the profile's atrium is not used, and the point
+	// names no level of type (decisions.json's point_levels).
+	if got := set.AtPoints[1].Effects.PointLevels[1]; got != pairedLevel || set.AtPoints[1].Effects.Effects[0].Change != "tower to apartment" {
 		t.Errorf("profile pairs at type %q from %q", got, set.AtPoints[1].Effects.Effects[0].Change)
 	}
 	// Odds ratios against the reference: the odds-ratio table's.
