@@ -405,6 +405,12 @@ func termTestsMethods(or *runner.OutcomeResult, inf plan.Inference, sampling boo
 		s = append(s, "Each term of the chosen model was tested by a Wald test that all its slopes are 0 and by a likelihood-ratio test against the chosen model refitted without the term on the same rows.")
 	}
 	s = append(s, "A term that takes part in an interaction was tested together with every interaction containing it, and each interaction on its own.")
+	for _, tt := range or.TermTests {
+		if tt.Bound != "" {
+			s = append(s, "Columns that make up a whole constraint group, whose common factor has no meaning without them, were tested with their tests referred to the chi-square distribution of the same columns made nonparallel, a model the constrained one is nested in, which gives conservative p-values.")
+			break
+		}
+	}
 	if or.Imputed != nil {
 		switch {
 		case wald && lr:

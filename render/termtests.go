@@ -24,7 +24,7 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		return
 	}
 	d.h(4, "Tests of each term")
-	d.p("Is each term associated with the outcome at all, given the other terms? For each term two tests of the hypothesis that all its slopes in the chosen model, %s, are 0 at every boundary: the Wald test, from the estimates and the model's standard errors, and the likelihood-ratio test, which compares the chosen model with the same model (comparison, link, effect structure of every other column) fitted without the term on the same rows. A term inside an interaction is tested together with every interaction containing it (column Tested with): its own slopes alone would measure its effect only where the other terms of the interaction are 0, which depends on their coding and centring; the interaction itself is tested alone. A constrained column that is the only column of its constraint group is tested by its effects at every boundary (the group's common factor goes with it); several columns that make up a whole constraint group have no test, since without them the common factor is not identified.", or.Chosen.ID)
+	d.p("Is each term associated with the outcome at all, given the other terms? For each term two tests of the hypothesis that all its slopes in the chosen model, %s, are 0 at every boundary: the Wald test, from the estimates and the model's standard errors, and the likelihood-ratio test, which compares the chosen model with the same model (comparison, link, effect structure of every other column) fitted without the term on the same rows. A term inside an interaction is tested together with every interaction containing it (column Tested with): its own slopes alone would measure its effect only where the other terms of the interaction are 0, which depends on their coding and centring; the interaction itself is tested alone. A constrained column that is the only column of its constraint group is tested by its effects at every boundary (the group's common factor goes with it). Each constraint group of several columns is also tested as a whole (its columns, named in column Tested with), unless a term's test already drops exactly its columns.", or.Chosen.ID)
 	wald, lr := inf.WantsTermWald(), inf.WantsTermLR()
 	switch {
 	case !lr:
@@ -46,7 +46,10 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		warned.add("Wald test of "+tt.Term, tt.Wald)
 		warned.add("likelihood-ratio test of "+tt.Term, tt.LR)
 		with := "(alone)"
-		if len(tt.With) > 0 {
+		switch {
+		case tt.Group != nil:
+			with = "its columns " + strings.Join(tt.Columns, ", ")
+		case len(tt.With) > 0:
 			with = strings.Join(tt.With, ", ")
 		}
 		row := []string{tt.Term, with}
@@ -65,6 +68,11 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	}
 	d.captioned("Tests of each term of "+or.Chosen.ID).table(head, rows)
 	warned.write(d)
+	for _, tt := range or.TermTests {
+		if tt.Bound != "" {
+			d.p("**Degrees of freedom of the tests of %s:** %s.", mdText(tt.Term), mdText(tt.Bound))
+		}
+	}
 	if a := r.Analysis; a != nil && a.Errors.Covariance.IsSandwich() && !a.Errors.Sampling {
 		d.p("The Wald tests use the standard errors of the %s, which do not rest on the model's variance being right; the likelihood-ratio tests rest on it (and treat the rows as independent), so where the two disagree this may be why.", a.Errors.Covariance.Phrase())
 	}

@@ -517,7 +517,7 @@ func pooledLR(or *OutcomeResult, perSet [][]*FitEntry, r, f *FitEntry) fit.Test 
 	for s := range perSet {
 		rs[s], fs[s] = perSet[s][ri].Result, perSet[s][fi].Result
 	}
-	return pooledLROf(or.Imputed.Sets, or.Imputed.Sets, r.Result, f.Result, rs, fs)
+	return pooledLROf(or.Imputed.Sets, or.Imputed.Sets, r.Result, f.Result, rs, fs, 0)
 }
 
 // setLR is the likelihood-ratio statistic of r within f on imputed set s
@@ -562,8 +562,9 @@ func negativeAtPooled(at []float64, tol float64, larger, smaller string) string 
 // pooledLROf is the D3 test of the pooled fit r within the pooled fit f,
 // with their fits rs and fs on each of the imputed sets: f's input on
 // set k is sets[k], r's rsets[k] (the same, or the same rows without
-// columns r has not).
-func pooledLROf(sets, rsets []*fit.Data, r, f *fit.Result, rs, fs []*fit.Result) fit.Test {
+// columns r has not); referred to df numerator degrees of freedom
+// (impute.FTest.Referred; 0: its own, the difference in parameters).
+func pooledLROf(sets, rsets []*fit.Data, r, f *fit.Result, rs, fs []*fit.Result, df int) fit.Test {
 	k := f.NParams - r.NParams
 	if k <= 0 {
 		return missingTest(fit.TestLR, "the models are not nested")
@@ -593,7 +594,7 @@ func pooledLROf(sets, rsets []*fit.Data, r, f *fit.Result, rs, fs []*fit.Result)
 	if err != nil {
 		return missingTest(fit.TestLR, err.Error())
 	}
-	return fTest(fit.TestLR, t, r.LogLik, f.LogLik)
+	return fTest(fit.TestLR, t.Referred(df), r.LogLik, f.LogLik)
 }
 
 // pooledEqualSlopes is the D1 test that the named columns' slopes are
@@ -630,6 +631,12 @@ func pooledEqualSlopesOf(res *fit.Result, pl *impute.Pooled, cols []string) fit.
 // or, under cluster-robust errors, when there are more restrictions than
 // the clusters less one (fit.Result.WaldDefined).
 func pooledWald(res *fit.Result, pl *impute.Pooled, rows [][]float64, c0 []float64) fit.Test {
+	return pooledWaldOn(res, pl, rows, c0, len(rows))
+}
+
+// pooledWaldOn is pooledWald referred to df numerator degrees of freedom
+// (impute.FTest.Referred; len(rows): its own).
+func pooledWaldOn(res *fit.Result, pl *impute.Pooled, rows [][]float64, c0 []float64, df int) fit.Test {
 	if err := res.WaldDefined(rows); err != nil {
 		return missingTest(fit.TestWald, err.Error())
 	}
@@ -641,7 +648,7 @@ func pooledWald(res *fit.Result, pl *impute.Pooled, rows [][]float64, c0 []float
 	if err != nil {
 		return missingTest(fit.TestWald, err.Error())
 	}
-	return fTest(fit.TestWald, t, math.NaN(), math.NaN())
+	return fTest(fit.TestWald, t.Referred(df), math.NaN(), math.NaN())
 }
 
 // fTest records a pooled F test in the test record: Chi2 holds DF x F.

@@ -75,7 +75,7 @@ func pooledStepwise(an *Analysis, or *OutcomeResult) fit.StepwiseFits {
 		if !ok1 || !ok2 {
 			return missingTest(fit.TestLR, "a model has no usable fit in every imputed set")
 		}
-		return pooledLROf(im.Sets, im.Sets, restricted, full, pr.per, pf.per)
+		return pooledLROf(im.Sets, im.Sets, restricted, full, pr.per, pf.per, 0)
 	}
 	return sf
 }

@@ -33,18 +33,30 @@ type TermTest struct {
 	LR fit.Test `json:"lr"`
 	// Without names the refit without the columns.
 	Without string `json:"restricted_model,omitempty"`
+	// Group names the constraint group a test of a whole group tests
+	// (its columns, not a term; "" for the plan's single group, which has
+	// no name); absent for a term's test.
+	Group *string `json:"constraint_group,omitempty"`
+	// Bound says why the tests' degrees of freedom exceed the quantities
+	// set to 0, when they do: the columns make up a whole constraint
+	// group (fit.NoEffect.DF), and the p-values are upper bounds.
+	Bound string `json:"reference,omitempty"`
 }
 
 // termScope is what one term test drops: a term and the interactions
-// containing it, with their columns.
+// containing it, with their columns; or the columns of a constraint
+// group (group set).
 type termScope struct {
 	term    string
 	with    []string
 	columns []string
+	group   *string
 }
 
 // termScopes lists the term tests of an outcome, in term order: each term
-// with the interactions containing it (containingInteractions).
+// with the interactions containing it (containingInteractions); then
+// each constraint group of several columns of the chosen model, in its
+// order, whose columns are not those of a term's test.
 func termScopes(or *OutcomeResult) []termScope {
 	var out []termScope
 	for i, t := range or.Terms {
@@ -57,7 +69,43 @@ func termScopes(or *OutcomeResult) []termScope {
 		}
 		out = append(out, sc)
 	}
+	terms := len(out)
+	for _, g := range or.Chosen.Spec.Groups {
+		same := func(sc termScope) bool {
+			return len(sc.columns) == len(g.Predictors) && !slices.ContainsFunc(g.Predictors, func(c string) bool { return !slices.Contains(sc.columns, c) })
+		}
+		if len(g.Predictors) < 2 || slices.ContainsFunc(out[:terms], same) {
+			continue
+		}
+		name := g.Name
+		out = append(out, termScope{term: GroupLabel(name), columns: slices.Clone(g.Predictors), group: &name})
+	}
 	return out
+}
+
+// GroupLabel is how the tests of each term name the test of a whole
+// constraint group: "constraint group NAME", or "the constraint group"
+// for the plan's single group, which has no name.
+func GroupLabel(name string) string {
+	if name == "" {
+		return "the constraint group"
+	}
+	return "constraint group " + name
+}
+
+// boundNote says why a test of the columns of whole constraint groups
+// (ne.Groups) is referred to more degrees of freedom than it sets
+// quantities to 0, and what its p-values are; "" when ne empties none.
+func boundNote(ne *fit.NoEffect) string {
+	if len(ne.Groups) == 0 {
+		return ""
+	}
+	var gs []string
+	for _, g := range ne.Groups {
+		gs = append(gs, strings.Join(g, ", "))
+	}
+	return fmt.Sprintf("%s make up a whole constraint group, whose common factor phi has no meaning without them, so the tests have no chi-square reference of their own: they are referred to chi-square on %d degrees of freedom, that of the same columns made nonparallel (a model the constrained one is nested in, whose likelihood-ratio statistic is never smaller), so their p-values are upper bounds (conservative)",
+		strings.Join(gs, "; "), ne.DF)
 }
 
 // without is the chosen model f refitted without cols: the same
@@ -122,7 +170,7 @@ func startTermTests(an *Analysis, or *OutcomeResult, wald func(*fit.NoEffect) fi
 	out := make([]TermTest, len(scopes))
 	refits := make([]*FitEntry, len(scopes))
 	for i, sc := range scopes {
-		tt := TermTest{Term: sc.term, With: sc.with, Columns: sc.columns}
+		tt := TermTest{Term: sc.term, With: sc.with, Columns: sc.columns, Group: sc.group}
 		ne, err := res.NoEffectOf(sc.columns)
 		if err != nil {
 			tt.Wald, tt.LR = missingTest(fit.TestWald, err.Error()), missingTest(fit.TestLR, err.Error())
@@ -137,7 +185,7 @@ func startTermTests(an *Analysis, or *OutcomeResult, wald func(*fit.NoEffect) fi
 			out[i] = tt
 			continue
 		}
-		tt.Tested = ne.Names
+		tt.Tested, tt.Bound = ne.Names, boundNote(ne)
 		if inf.WantsTermWald() {
 			tt.Wald = wald(ne)
 		}
@@ -186,24 +234,33 @@ func runTermTests(an *Analysis, or *OutcomeResult, opt Options) {
 }
 
 // termLR is the likelihood-ratio test of the refit r within the chosen
-// model f (sameDF).
+// model f, referred to the degrees of freedom of the hypothesis
+// (nestedAsTested).
 func termLR(r, f *FitEntry) fit.Test {
 	if r.Err != "" && r.Result == nil {
 		return missingTest(fit.TestLR, r.ID+": "+r.Err)
 	}
+	ne, why := nestedAsTested(r, f)
 	t := lrOf(r, f)
-	return sameDF(t, r, f)
-}
-
-// sameDF refuses a likelihood-ratio test whose degrees of freedom (the
-// difference in parameters) do not count the quantities the term test
-// sets to 0: the models would not be nested as the hypothesis says.
-func sameDF(t fit.Test, r, f *FitEntry) fit.Test {
-	ne, err := f.Result.NoEffectOf(termColumnsDropped(r, f))
-	if t.OK && (err != nil || len(ne.R) != t.DF) {
-		return missingTest(fit.TestLR, fmt.Sprintf("%s is not %s with the term's parameters set to 0", r.ID, f.ID))
+	switch {
+	case t.OK && why != "":
+		return missingTest(fit.TestLR, why)
+	case t.OK && ne.DF != t.DF:
+		t.DF, t.P = ne.DF, fit.ChiSquareP(t.Chi2, ne.DF)
 	}
 	return t
+}
+
+// nestedAsTested is the hypothesis of no effect of the columns of f that
+// its refit r has not, or why the two are not nested as it says: r must
+// have as many parameters fewer as the hypothesis drops (the quantities
+// set to 0, and the phi of a group emptied).
+func nestedAsTested(r, f *FitEntry) (*fit.NoEffect, string) {
+	ne, err := f.Result.NoEffectOf(termColumnsDropped(r, f))
+	if err != nil || r.Result == nil || ne.Dropped != f.Result.NParams-r.Result.NParams {
+		return nil, fmt.Sprintf("%s is not %s with the term's parameters set to 0", r.ID, f.ID)
+	}
+	return ne, ""
 }
 
 // termColumnsDropped are the columns of f that its refit r has not.
@@ -227,7 +284,7 @@ func runPooledTermTests(an *Analysis, or *OutcomeResult, opt Options) {
 	}
 	res, pl := or.Chosen.Result, or.Chosen.Pooled
 	out, scopes, refits := startTermTests(an, or, func(ne *fit.NoEffect) fit.Test {
-		return pooledWald(res, pl, ne.R, ne.Offsets(res.Estimates))
+		return pooledWaldOn(res, pl, ne.R, ne.Offsets(res.Estimates), ne.DF)
 	})
 	run := or.Imputed
 	chosen, cerr := or.chosenPerSet()
@@ -275,6 +332,14 @@ func pooledTermLR(or *OutcomeResult, e *FitEntry, perSet []*FitEntry, sets []*fi
 		return missingTest(fit.TestLR, err.Error())
 	}
 	e.Result, e.Pooled = r, pl
-	t := pooledLROf(or.Imputed.Sets, sets, r, or.Chosen.Result, rs, chosen)
-	return sameDF(t, e, or.Chosen)
+	ne, why := nestedAsTested(e, or.Chosen)
+	df := 0
+	if ne != nil {
+		df = ne.DF
+	}
+	t := pooledLROf(or.Imputed.Sets, sets, r, or.Chosen.Result, rs, chosen, df)
+	if t.OK && why != "" {
+		return missingTest(fit.TestLR, why)
+	}
+	return t
 }

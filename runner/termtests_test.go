@@ -97,6 +97,42 @@ func TestTermTestsAgainstGlm(t *testing.T) {
 	}
 }
 
+// TestGroupTestAgainstGlm: the joint test of a whole constraint group
+// (type and cont, no term's columns alone) on the housing table collapsed
+// to two categories. With one boundary there is no common factor: the
+// constrained model is the cumulative logit model with parallel effects,
+// which with two categories is logistic regression, so the group's tests
+// must be base R's glm: the difference of the deviances of y ~ infl and
+// y ~ infl + type + cont, and b' V^-1 b over the type and cont
+// coefficients from coef() and vcov() (script
+// runner/testdata/rcheck/termgroup.R). Data: the Copenhagen housing
+// table (Madsen 1976), published, in testdata/reference.
+func TestGroupTestAgainstGlm(t *testing.T) {
+	rscript.Require(t)
+	dir := t.TempDir()
+	src := strings.Replace(housingTwo(t, dir), "predictors: [infl, type, cont, {interact: [infl, cont]}]", "predictors: [infl, type, cont]", 1)
+	src = strings.Replace(src, "effects: [parallel]}", "effects: [constrained], partial: {free: [type, cont]}}", 1)
+	or := runPlan(t, planIn(t, dir, src), 0).Outcomes[0]
+	if len(or.TermTests) != 4 {
+		t.Fatalf("%d tests: %+v", len(or.TermTests), or.TermTests)
+	}
+	g := or.TermTests[3]
+	if g.Group == nil || *g.Group != "" || g.Term != "the constraint group" || g.Bound != "" || len(g.Columns) != 4 {
+		t.Fatalf("the group's test: %+v", g)
+	}
+	vals := rscript.Run(t, dir, "testdata/rcheck/termgroup.R")
+	for _, c := range []struct {
+		kind string
+		got  fit.Test
+	}{{"lr", g.LR}, {"wald", g.Wald}} {
+		r := vals.Get(t, c.kind+"_group")
+		if !c.got.OK || math.Abs(c.got.Chi2-r[0]) > 1e-6*math.Max(1, r[0]) || c.got.DF != int(r[1]) {
+			t.Errorf("group %s: %+v; glm chi2(%g) = %.10g", c.kind, c.got, r[1], r[0])
+		}
+		t.Logf("group %s: chi2(%d) = %.8f, glm %.8f", c.kind, c.got.DF, c.got.Chi2, r[0])
+	}
+}
+
 // TestTermTestsLargeSample: on a large invented sample (seeded, with
 // small effects) the Wald and likelihood-ratio statistics of each term
 // agree closely, as their common asymptotic theory says (they differ by
@@ -147,8 +183,10 @@ func TestTermTestsLargeSample(t *testing.T) {
 // term tests equal those of the partial model in which it is nonparallel:
 // the likelihood-ratio test exactly (the same two likelihoods), the Wald
 // test too (its delta-method covariance of phi_m g is the inverse
-// information of the free slopes). Two columns that are all of a group
-// have no test; a column whose group keeps others is tested by its g.
+// information of the free slopes). Columns that make up a whole group of
+// several are tested by their g, referred to the degrees of freedom of
+// the same columns nonparallel (a bound); a column whose group keeps
+// others is tested by its g.
 func TestTermTestsConstrained(t *testing.T) {
 	dir := t.TempDir()
 	rng := rand.New(rand.NewPCG(7, 70))
@@ -201,13 +239,56 @@ rules:
 	if !strings.Contains(c.Tested[1], "phi[2]*x") {
 		t.Errorf("tested %v", c.Tested)
 	}
+	// g's two columns make up their group: without them phi has no
+	// meaning. Both tests are referred to chi-square on 6 = 2 x 3 degrees
+	// of freedom, those of g nonparallel in the partial model; the
+	// constrained model is nested in that one with the same model without
+	// g, so its likelihood-ratio statistic is at most the partial model's
+	// (exactly: the two restricted fits are the same model) and its
+	// p-value at least.
 	g := byTerm(run("constrained", "{free: [g]}"), "g")
-	if g.Wald.OK || g.LR.OK || !strings.Contains(g.Wald.Reason, "g.b, g.c make up a whole constraint group") {
+	gp := byTerm(run("partial", "{free: [g]}"), "g")
+	if !g.Wald.OK || !g.LR.OK || g.Wald.DF != 6 || g.LR.DF != 6 || gp.LR.DF != 6 || !strings.Contains(g.Bound, "g.b, g.c make up a whole constraint group") ||
+		strings.Join(g.Tested, " ") != "g.b g.c" {
 		t.Errorf("g alone in its group: %+v", g)
 	}
+	if !(g.LR.Chi2 <= gp.LR.Chi2+1e-9) || !(g.LR.P >= gp.LR.P) || math.Abs(g.LR.LLRestricted-gp.LR.LLRestricted) > 1e-8 {
+		t.Errorf("g: constrained LR %+v, partial %+v", g.LR, gp.LR)
+	}
+	t.Logf("g, whole group: Wald %.6f, LR %.6f (p %.4g); nonparallel in the partial model: LR %.6f (p %.4g)", g.Wald.Chi2, g.LR.Chi2, g.LR.P, gp.LR.Chi2, gp.LR.P)
 	shared := run("constrained", "{free: [x, w]}")
-	if x := byTerm(shared, "x"); !x.Wald.OK || !x.LR.OK || x.Wald.DF != 1 || x.LR.DF != 1 {
+	if x := byTerm(shared, "x"); !x.Wald.OK || !x.LR.OK || x.Wald.DF != 1 || x.LR.DF != 1 || x.Bound != "" {
 		t.Errorf("x with w in its group: %+v", x)
+	}
+	// On imputed sets that are all the data itself the between-imputation
+	// variance is 0, so D1 and D3 are the tests of one data set, and the
+	// group's pooled tests must be g's above, on the same bound.
+	src, _ := os.ReadFile(filepath.Join(dir, "d.csv"))
+	os.WriteFile(filepath.Join(dir, "d2.csv"), src, 0o644)
+	pooled := runPlan(t, planIn(t, dir, `version: 1
+data: {file: d.csv, imputed: {files: [d.csv, d2.csv]}}
+outcomes: [{column: y}]
+categorical: {g: {levels: [a, b, c]}}
+predictors: [x, w, g]
+models: {approaches: [cumulative], effects: [constrained], partial: {free: [g]}}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: aic}
+`), 0).Outcomes[0]
+	pg := byTerm(pooled, "g")
+	for _, pair := range [][2]fit.Test{{pg.Wald, g.Wald}, {pg.LR, g.LR}} {
+		p, one := pair[0], pair[1]
+		if !p.OK || p.Pooled == "" || p.DF != 6 || p.DF2 != 0 || math.Abs(p.Chi2-one.Chi2) > 1e-6*one.Chi2 || math.Abs(p.P-one.P) > 1e-6 {
+			t.Errorf("g pooled over identical sets: %+v; on the data: %+v", p, one)
+		}
+	}
+
+	// The group of x and w, no term's columns: tested as a whole, after
+	// the terms, on 2 x 3 degrees of freedom.
+	both := shared.TermTests[len(shared.TermTests)-1]
+	if both.Group == nil || both.Term != "the constraint group" || len(shared.TermTests) != 4 || !both.LR.OK || !both.Wald.OK || both.LR.DF != 6 || both.Wald.DF != 6 ||
+		strings.Join(both.Columns, " ") != "x w" || !strings.Contains(both.Bound, "x, w make up a whole constraint group") {
+		t.Errorf("the group of x and w: %+v", both)
 	}
 }
 

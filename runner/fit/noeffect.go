@@ -3,7 +3,6 @@ package fit
 import (
 	"fmt"
 	"slices"
-	"strings"
 )
 
 // NoEffect is the hypothesis that some predictor columns of a fit have no
@@ -23,26 +22,32 @@ import (
 //     the column's nonparallel slopes (the same likelihood), whose Wald
 //     test of b_k[1..J-1] = 0 this is (the inverse information transforms
 //     with the parameters);
-//   - several columns that together empty a group of three or more
-//     categories: not testable (UnidentifiedError).
+//   - several columns that make up a whole constraint group (with three
+//     or more categories): their g_k. Without them the group's phi has
+//     no meaning, so under the hypothesis phi is not identified and
+//     neither statistic has a chi-square reference of its own; DF refers
+//     both to that of the same columns made nonparallel (J-1 slopes
+//     each), a model the constrained one is nested in with the same
+//     restricted model, whose likelihood-ratio statistic is never the
+//     smaller: p-values that are upper bounds (conservative). The Wald
+//     statistic, with phi's uncertainty in its covariance, is at most
+//     the statistic with phi held at its estimate, which in large samples
+//     is the likelihood ratio at that phi; it is referred alike.
 type NoEffect struct {
 	Columns []string
 	Names   []string    // the quantities, e.g. x, x[2], "x[2] = phi[2]*x"
 	R       [][]float64 // d q / d theta at the estimates, one row per quantity
 	Value   []float64   // q at the estimates
 	Linear  bool        // every quantity is a parameter
-}
-
-// UnidentifiedError is a hypothesis of no effect that has no test with a
-// chi-square reference: the columns tested are all the columns of a
-// constraint group with more than one column, so without them the
-// group's common factor phi is not identified.
-type UnidentifiedError struct {
-	Group []string // the group's columns
-}
-
-func (e *UnidentifiedError) Error() string {
-	return fmt.Sprintf("%s make up a whole constraint group, whose common factor phi has no meaning without them, so neither the Wald nor the likelihood-ratio statistic has a chi-square reference", strings.Join(e.Group, ", "))
+	// Groups are the constraint groups of several columns that the
+	// columns make up whole (three or more categories), each its columns.
+	Groups [][]string
+	// DF is the degrees of freedom of the tests' reference: len(R), plus
+	// J-2 per column of a whole group (Groups).
+	DF int
+	// Dropped is how many parameters fewer the model without the columns
+	// has: len(R), plus the J-2 phi of each whole group.
+	Dropped int
 }
 
 // NoEffectOf writes the hypothesis that cols have no effect in fit r.
@@ -85,11 +90,17 @@ func (r *Result) NoEffectOf(cols []string) (*NoEffect, error) {
 				continue
 			}
 			if len(members) > 1 {
-				var names []string
-				for _, j := range members {
-					names = append(names, r.Predictors[j])
+				pick(s)
+				if members[0] == k { // the group once, at its first column
+					var names []string
+					for _, j := range members {
+						names = append(names, r.Predictors[j])
+					}
+					ne.Groups = append(ne.Groups, names)
+					ne.DF += len(members) * (q - 1)
+					ne.Dropped += q - 1
 				}
-				return nil, &UnidentifiedError{Group: names}
+				continue
 			}
 			// The only column of its group: b_m = phi_m g at every
 			// boundary, by the delta method (db/dg = phi_m, db/dphi_m = g).
@@ -109,12 +120,14 @@ func (r *Result) NoEffectOf(cols []string) (*NoEffect, error) {
 			}
 		}
 	}
+	ne.DF += len(ne.R)
+	ne.Dropped += len(ne.R)
 	return ne, nil
 }
 
 // WaldNoEffect is the Wald test of ne in fit r with its covariance (by the
-// delta method when ne is not linear), on as many degrees of freedom as ne
-// has quantities.
+// delta method when ne is not linear), on ne.DF degrees of freedom (as
+// many as ne has quantities, unless it empties a constraint group).
 func WaldNoEffect(r *Result, ne *NoEffect) Test {
 	if !r.OK() || r.Cov == nil {
 		return failedTest(TestWald.String(), "%s has no usable estimates", r.Name)
@@ -123,7 +136,7 @@ func WaldNoEffect(r *Result, ne *NoEffect) Test {
 	if err != nil {
 		return failedTest(TestWald.String(), "%v", err)
 	}
-	return chi2Test(TestWald.String(), x, len(ne.R))
+	return chi2Test(TestWald.String(), x, ne.DF)
 }
 
 // Offsets are c0 of the linear restrictions R theta = c0 that the delta

@@ -221,6 +221,22 @@ type FTest struct {
 	Warnings string
 }
 
+// Referred is t referred to k numerator degrees of freedom in place of
+// its own: the same statistic DF1 x F, as F = DF1 F / k on (k,
+// pooledTestDF(k, m, RIV)) degrees of freedom. A hypothesis with no
+// reference of its own dimension (a whole constraint group, whose common
+// factor it leaves unidentified) is referred so to the reference of a
+// larger model it is nested in.
+func (t FTest) Referred(k int) FTest {
+	if k == t.DF1 || k < 1 {
+		return t
+	}
+	t.F = t.F * float64(t.DF1) / float64(k)
+	t.DF1, t.DF2 = k, pooledTestDF(k, t.Imputed, t.RIV)
+	t.P = fSurvival(t.F, k, t.DF2)
+	return t
+}
+
 // pooledTestDF is the denominator degrees of freedom shared by D1 and D3:
 // with t = k(m-1), 4 + (t-4)(1 + (1-2/t)/r)^2 when t > 4, else
 // t(1+1/k)(1+1/r)^2/2.
