@@ -744,6 +744,17 @@ func excludedBy(p *Plan, col, v string) *data.Condition {
 	return nil
 }
 
+// subsetKeeps lists the declared levels of c that the subset keeps.
+func subsetKeeps(p *Plan, c *CategoricalColumn) []string {
+	var kept []string
+	for _, l := range c.Levels {
+		if excludedBy(p, c.Column, l) == nil {
+			kept = append(kept, l)
+		}
+	}
+	return kept
+}
+
 // checkGenerator settles the generating comparison, direction and link.
 func (d *decoder) checkGenerator(p *Plan) {
 	a := p.Assumptions

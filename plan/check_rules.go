@@ -241,13 +241,7 @@ func (d *decoder) checkGridLevels(p *Plan, c *CategoricalColumn, ax GridAxis, ke
 			d.errAt(ip, "the level %s is listed twice: each level is one point of the grid; list it once", quote(l))
 		case d.clean("subset") && excludedBy(p, ax.Predictor, l) != nil:
 			sc := excludedBy(p, ax.Predictor, l)
-			var kept []string
-			for _, k := range c.Levels {
-				if excludedBy(p, ax.Predictor, k) == nil {
-					kept = append(kept, k)
-				}
-			}
-			d.errAt(ip, "%s is a level the subset leaves out (%s: %s): no row used has it, so the models have no effect of it to compare; give levels the rows used have (%s), or %s", quote(l), sc.Key, sc.String(), strings.Join(kept, ", "), GridAllLevels)
+			d.errAt(ip, "%s is a level the subset leaves out (%s: %s): no row used has it, so the models have no effect of it to compare; give levels the rows used have (%s), or %s", quote(l), sc.Key, sc.String(), strings.Join(subsetKeeps(p, c), ", "), GridAllLevels)
 		}
 		seen[l] = true
 	}

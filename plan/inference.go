@@ -271,13 +271,7 @@ func (d *decoder) checkInference(p *Plan) {
 			d.errAt(key, "%s is not a level of %s, which is categorical: give one of its levels (%s)", quote(a.Level), quote(a.Predictor), strings.Join(c.Levels, ", "))
 		case c != nil && d.clean("subset") && excludedBy(p, a.Predictor, a.Level) != nil:
 			sc := excludedBy(p, a.Predictor, a.Level)
-			var kept []string
-			for _, l := range c.Levels {
-				if excludedBy(p, a.Predictor, l) == nil {
-					kept = append(kept, l)
-				}
-			}
-			d.errAt(key, "%s is a level the subset leaves out (%s: %s): no row used has it, so the fitted model has no effect of it; give a level the rows used have (%s)", quote(a.Level), sc.Key, sc.String(), strings.Join(kept, ", "))
+			d.errAt(key, "%s is a level the subset leaves out (%s: %s): no row used has it, so the fitted model has no effect of it; give a level the rows used have (%s)", quote(a.Level), sc.Key, sc.String(), strings.Join(subsetKeeps(p, c), ", "))
 		case c == nil && a.Level != "":
 			d.errAt(key, "%s is numeric: give a number, got %s", quote(a.Predictor), quote(a.Level))
 		case c == nil && math.IsNaN(a.Value):

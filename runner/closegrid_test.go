@@ -185,3 +185,37 @@ func sameLabels(a, b string) bool {
 	}
 	return true
 }
+
+// A grid level that no row used has (its column dropped: unobserved:
+// drop) stops a run before any fit, on one data set and on imputed sets
+// alike, at the grid's key; with all the grid takes the levels the rows
+// have.
+func TestCloseRuleGridLevelNoRowHas(t *testing.T) {
+	dir := t.TempDir()
+	closeGridData(t, dir)
+	src := strings.Replace(closeGridPlan("{x: [0], site: [south, west]}"), "levels: [north, east, south]}", "levels: [north, east, south, west], unobserved: drop}", 1)
+	b, _ := os.ReadFile(filepath.Join(dir, "d.csv"))
+	lines := strings.Split(string(b), "\n")
+	for i := 1; i < len(lines); i += 50 { // some x missing, for the imputed run
+		if f := strings.Split(lines[i], ","); len(f) == 3 {
+			lines[i] = f[0] + ",," + f[2]
+		}
+	}
+	os.WriteFile(filepath.Join(dir, "m.csv"), []byte(strings.Join(lines, "\n")), 0o644)
+	want := `p.yaml:12:70: rules[0].reject_if_simpler_is_close.grid.site: level "west" of site occurs in no row used`
+	for _, imputed := range []bool{false, true} {
+		s := src
+		if imputed {
+			s = strings.Replace(s, "data: {file: d.csv}", "data: {file: m.csv, missing: impute, imputation: {sets: 2, iterations: 2}}", 1)
+		}
+		p := planIn(t, dir, s)
+		if _, err := Run(p, Options{}); err == nil || !strings.Contains(err.Error(), want) {
+			t.Errorf("imputed %v: %v", imputed, err)
+		}
+	}
+	p := planIn(t, dir, strings.Replace(src, "site: [south, west]", "site: all", 1))
+	res := runPlan(t, p, 0)
+	if v := verdictOf(res.Outcomes[0].Rules[0], "cumulative/nonparallel/logit"); v == nil || !strings.Contains(v.Reason, "over the 3 grid points") {
+		t.Errorf("all: %+v", v)
+	}
+}

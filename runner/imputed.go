@@ -727,6 +727,9 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 			return nil, fmt.Errorf("%s: outcome %q, imputed set %d: %v", an.Source, oc.Column, k+1, err)
 		}
 	}
+	if err := an.checkGridLevels(r, dz); err != nil {
+		return nil, err
+	}
 	backward := an.Models.Backward()
 	or.FreeSets, or.Stepwise = freeSets(an, or.Terms, pooledStepwise(an, or), backward, opt.Workers)
 	jobs, notes := gridJobs(an, or.Terms, or.FreeSets, backward)
