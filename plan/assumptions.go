@@ -40,7 +40,44 @@ type Assumptions struct {
 	// Missing says which simulated values are missing, column by column,
 	// in the order written.
 	Missing []MissingAssumption
-	Line    int
+	// Clusters says how the cluster column (data.cluster) is simulated;
+	// nil: the default, runs of DefaultClusterRows consecutive rows
+	// without a cluster effect.
+	Clusters *ClusterAssumption
+	Line     int
+}
+
+// DefaultClusterRows is the rows of each simulated cluster when the
+// assumptions do not say (assumptions.clusters.rows_each).
+const DefaultClusterRows = 10
+
+// ClusterAssumption is assumptions.clusters: the clusters' number
+// (Number, the same at every sample size) or size (RowsEach, so that
+// their number grows with n), and their effect: a normal random intercept
+// of standard deviation SD on the generating link's scale, or stated
+// (ICCStated) as the intraclass correlation ICC on the latent scale.
+type ClusterAssumption struct {
+	Number    int
+	RowsEach  int
+	SD        float64
+	ICC       float64
+	ICCStated bool
+	Key       string
+}
+
+// InterceptSD is the standard deviation of the clusters' intercepts
+// under the generating link l: SD, or from the latent intraclass
+// correlation, sqrt(icc / (1 - icc) v), v the variance of the link's
+// distribution (fit.LinkVariance).
+func (c *ClusterAssumption) InterceptSD(l fit.Link) float64 {
+	if c == nil {
+		return 0
+	}
+	if !c.ICCStated {
+		return c.SD
+	}
+	v, _ := fit.LinkVariance(l)
+	return math.Sqrt(c.ICC / (1 - c.ICC) * v)
 }
 
 // MissingAssumption states how often one simulated column is missing and
@@ -140,6 +177,7 @@ var (
 	outAssumptionKeys  = keysAt("assumptions.outcomes")
 	corrKeys           = keysAt("assumptions.correlations")
 	missAssumptionKeys = keysAt("assumptions.missing")
+	clusterKeys        = keysAt("assumptions.clusters")
 )
 
 // decodeAssumptions reads the assumptions section.
@@ -173,7 +211,61 @@ func (d *decoder) decodeAssumptions(n *yaml.Node) *Assumptions {
 	if v := m.get("missing"); v != nil {
 		a.Missing = d.decodeMissingAssumptions(v, m.at("missing"))
 	}
+	if v := m.get("clusters"); v != nil {
+		a.Clusters = d.decodeClusters(v, m.at("clusters"))
+	}
 	return a
+}
+
+// decodeClusters reads {number or rows_each, intercept_sd or latent_icc}.
+func (d *decoder) decodeClusters(n *yaml.Node, path string) *ClusterAssumption {
+	c := &ClusterAssumption{Key: path}
+	m := d.mapping(n, path, clusterKeys)
+	if m == nil {
+		return nil
+	}
+	if m.get("number") != nil && m.get("rows_each") != nil {
+		d.errAt(m.at("rows_each"), "give number (the clusters, the same at every sample size) or rows_each (the rows of each cluster, so that the clusters grow with the sample size), not both")
+	}
+	if m.get("intercept_sd") != nil && m.get("latent_icc") != nil {
+		d.errAt(m.at("latent_icc"), "give intercept_sd (the standard deviation of the clusters' intercepts) or latent_icc (the intraclass correlation on the latent scale, which sets it), not both")
+	}
+	if v := m.get("number"); v != nil {
+		if k, ok := d.integer(v, m.at("number")); ok {
+			if k < 2 || k > 10_000_000 {
+				d.errorf(deref(v), m.at("number"), "want from 2 to 10000000 clusters, got %d (clustered errors compare clusters: one cluster gives them nothing to compare)", k)
+			} else {
+				c.Number = int(k)
+			}
+		}
+	} else if v := m.get("rows_each"); v != nil {
+		if k, ok := d.integer(v, m.at("rows_each")); ok {
+			if k < 1 || k > 10_000_000 {
+				d.errorf(deref(v), m.at("rows_each"), "want from 1 to 10000000 rows in each cluster, got %d", k)
+			} else {
+				c.RowsEach = int(k)
+			}
+		}
+	}
+	if c.Number == 0 && c.RowsEach == 0 {
+		c.RowsEach = DefaultClusterRows
+	}
+	if v := m.get("intercept_sd"); v != nil {
+		if x, ok := d.number(v, m.at("intercept_sd")); ok {
+			if x < 0 {
+				d.errorf(deref(v), m.at("intercept_sd"), "the standard deviation of the clusters' intercepts must be 0 or more, got %s (0: no cluster effect)", fmtNum(x))
+			}
+			c.SD = x
+		}
+	} else if v := m.get("latent_icc"); v != nil {
+		if x, ok := d.number(v, m.at("latent_icc")); ok {
+			if !(x >= 0 && x < 1) {
+				d.errorf(deref(v), m.at("latent_icc"), "an intraclass correlation on the latent scale must be at least 0 and below 1, got %s (0: no cluster effect; at 1 the rows of a cluster would share one latent value)", fmtNum(x))
+			}
+			c.ICC, c.ICCStated = x, true
+		}
+	}
+	return c
 }
 
 // decodeMissingAssumptions reads column: {proportion, given: {col: strength}}.
@@ -510,6 +602,7 @@ func (d *decoder) checkAssumptions(p *Plan) {
 	d.checkCorrelations(p)
 	d.checkMissing(p)
 	d.checkSimulatedWeights(p)
+	d.checkClusters(p)
 	seen := map[string]bool{}
 	for i := range a.Outcomes {
 		oa := &a.Outcomes[i]
@@ -614,6 +707,24 @@ func (d *decoder) checkMissing(p *Plan) {
 				}
 				d.errAt(g.Key, "missing at random given %s needs the %s observed in every row, but %s makes it missing too: the missingness would then depend on values that are themselves missing (not at random); give %s no missing values, or name another column", quote(g.Column), what, missing[g.Column], quote(g.Column))
 			}
+		}
+	}
+}
+
+// checkClusters checks the stated clusters against the plan: a cluster
+// column to simulate, and a link with a latent variance for latent_icc.
+func (d *decoder) checkClusters(p *Plan) {
+	c := p.Assumptions.Clusters
+	if c == nil {
+		return
+	}
+	if p.Data.Cluster == "" {
+		d.errAt(c.Key, "the plan has no cluster column (data.cluster), so there are no clusters to simulate: name the cluster column under data.cluster (and covariance: clustered for cluster-robust errors), or remove assumptions.clusters")
+		return
+	}
+	if l, err := fit.ParseLink(p.Assumptions.Link); err == nil && c.ICCStated {
+		if _, ok := fit.LinkVariance(l); !ok {
+			d.errAt(c.Key+".latent_icc", "the generating link is %s, whose distribution has no variance, so a latent intraclass correlation does not define the clusters' intercepts: give intercept_sd instead", quote(l.String()))
 		}
 	}
 }
@@ -898,6 +1009,20 @@ func (a *Assumptions) canonical() map[string]any {
 			cs = append(cs, map[string]any{"between": []string{c.A, c.B}, "r": c.R})
 		}
 		out["correlations"] = cs
+	}
+	if c := a.Clusters; c != nil {
+		cm := map[string]any{}
+		if c.Number > 0 {
+			cm["number"] = c.Number
+		} else {
+			cm["rows_each"] = c.RowsEach
+		}
+		if c.ICCStated {
+			cm["latent_icc"] = c.ICC
+		} else {
+			cm["intercept_sd"] = c.SD
+		}
+		out["clusters"] = cm
 	}
 	if len(a.Missing) > 0 {
 		miss := map[string]any{}

@@ -11,6 +11,7 @@ import (
 
 	"ordplan/plan/lock"
 	"ordplan/runner"
+	"ordplan/runner/fit"
 	"ordplan/runner/simulate"
 )
 
@@ -54,6 +55,10 @@ func PowerOutputs(pr *simulate.PowerResult, reg *lock.Status) (map[string][]byte
 	if len(pr.Truncated) > 0 {
 		d.p("%s", simulatedTruncationText(pr.Truncated))
 	}
+	if pr.Clusters != nil {
+		d.p("%s", simulatedClustersText(pr.Clusters))
+		writeFewClusters(d, pr)
+	}
 	writePowerSizes(d, pr)
 	d.p("Every rate is a share of the %d replicates of a size, with its Monte Carlo standard error sqrt(p(1-p)/R) in brackets.", pr.Replicates)
 	for _, op := range pr.Outcomes {
@@ -62,6 +67,7 @@ func PowerOutputs(pr *simulate.PowerResult, reg *lock.Status) (map[string][]byte
 		writePowerModels(d, op, pr.Generator)
 		writePowerNone(d, op)
 		writePowerProblems(d, op)
+		writePowerClusters(d, op)
 	}
 	d.h(2, "Assumptions and limits")
 	corr := "predictors that are correlated (they are drawn independently here)"
@@ -69,7 +75,7 @@ func PowerOutputs(pr *simulate.PowerResult, reg *lock.Status) (map[string][]byte
 		corr = "other correlations between predictors (stated: " + strings.Join(pr.Correlations, "; ") + ", as correlations of normal scores; the other columns are drawn independently)"
 	}
 	d.list([]string{
-		"Power is computed under the stated assumptions only: other category proportions or effects, " + corr + ", " + missingLimit(pr) + " or clustering give other numbers.",
+		"Power is computed under the stated assumptions only: other category proportions or effects, " + corr + ", " + missingLimit(pr) + " or " + clusterLimit(pr) + " give other numbers.",
 		"A hypothesis counts as rejected only in the model the rules chose; a replicate whose chosen model does not have the hypothesis's parameters, or where no model was chosen, counts as not rejected (the column \"not testable\").",
 		"The share of replicates choosing each model shows whether the rules find the structure that generated the data: a " + pr.Generator + " model with the stated parallel and nonparallel effects.",
 	})
@@ -290,6 +296,59 @@ func contains(xs []string, s string) bool {
 		}
 	}
 	return false
+}
+
+// clusterLimit names the clustering the power study did not assume.
+func clusterLimit(pr *simulate.PowerResult) string {
+	if pr.Clusters == nil {
+		return "clustering"
+	}
+	return "other numbers, sizes or effects of clusters, or predictors constant within clusters (drawn row by row here)"
+}
+
+// writeFewClusters names, at the top, the sizes where some run warned of
+// too few clusters (each outcome's Clusters section gives the warning).
+func writeFewClusters(d *doc, pr *simulate.PowerResult) {
+	var sizes []string
+	for i, n := range pr.Sizes {
+		for _, op := range pr.Outcomes {
+			if i < len(op.Sizes) && op.Sizes[i].Clusters != nil && op.Sizes[i].Clusters.FewWarned.Count > 0 {
+				sizes = append(sizes, fmt.Sprint(n))
+				break
+			}
+		}
+	}
+	if len(sizes) == 0 {
+		return
+	}
+	d.p("**Warning: at n = %s the plan's clustered errors rest on fewer than %d clusters** in some or all replicates, so the power there is overstated; see Clusters under each outcome.", strings.Join(sizes, ", "), fit.FewClusters)
+}
+
+// writePowerClusters gives the clusters simulated at each size and the
+// rows the runs used, and warns, size by size, where the runs' clustered
+// errors rest on too few clusters (the runs' own warning).
+func writePowerClusters(d *doc, op simulate.OutcomePower) {
+	if len(op.Sizes) == 0 || op.Sizes[0].Clusters == nil {
+		return
+	}
+	d.h(3, "Clusters")
+	head := sizeHead("Clusters", op.Sizes)
+	sim, used := []string{"simulated"}, []string{"in the rows used (fewest to most)"}
+	for _, s := range op.Sizes {
+		c := s.Clusters
+		sim = append(sim, fmt.Sprint(c.Simulated))
+		if c.UsedMin == c.UsedMax {
+			used = append(used, fmt.Sprint(c.UsedMin))
+		} else {
+			used = append(used, fmt.Sprintf("%d to %d", c.UsedMin, c.UsedMax))
+		}
+	}
+	d.table(head, [][]string{sim, used})
+	for _, s := range op.Sizes {
+		if c := s.Clusters; c.FewWarned.Count > 0 {
+			d.p("**Warning: at n = %d the runs' clustered errors rest on fewer than %d clusters** (%d of %d replicates), so the rates there overstate the power: cluster-robust errors from few clusters are too small and their tests reject too often. The first run said: %s", s.N, c.FewBelow, c.FewWarned.Count, c.FewWarned.Of, mdText(c.Warning))
+		}
+	}
 }
 
 // missingLimit names the missing values the power study did not assume.

@@ -37,6 +37,9 @@ func writeSimulated(d *doc, r *runner.Result) {
 	if len(s.Truncated) > 0 {
 		d.p("%s", simulatedTruncationText(s.Truncated))
 	}
+	if s.Clusters != nil {
+		d.p("%s", simulatedClustersText(s.Clusters))
+	}
 }
 
 // simulatedTruncationText says which numeric columns were drawn from
@@ -60,6 +63,56 @@ func simulatedTruncationText(ts []runner.SimulatedTruncation) string {
 		cols = append(cols, c+fmt.Sprintf("; the column drawn has mean %s and sd %s", g(t.Mean), g(t.SD)))
 	}
 	return "Numeric columns with a range in the dictionary were drawn from the stated normal distribution truncated to that range: a draw outside the range was drawn again, from the same seeded stream, so no simulated value lies outside it, and the column drawn has the mean and sd of the truncated normal, not quite those stated (a range that leaves out more than half of the normal is refused). " + strings.Join(cols, ". ") + "."
+}
+
+// simulatedClustersText says how the plan's cluster column was simulated:
+// the clusters' number or size, stated (assumptions.clusters) or the
+// default, their effect (a random intercept, with its latent intraclass
+// correlation) and what that means for the numbers. A rehearsal's record
+// adds the clusters of its rows and the intercepts drawn.
+func simulatedClustersText(c *runner.SimulatedClusters) string {
+	name := mdCode(c.Column)
+	var how string
+	switch {
+	case c.Number > 0:
+		how = fmt.Sprintf("%d clusters at every sample size (`assumptions.clusters.number`), each a run of consecutive rows, their sizes differing by at most one", c.Number)
+	case c.Stated:
+		how = fmt.Sprintf("runs of %d consecutive rows (`assumptions.clusters.rows_each`), so the clusters grow with the sample size", c.RowsEach)
+	default:
+		how = fmt.Sprintf("runs of %d consecutive rows, the default (the assumptions state no `clusters`), so the clusters grow with the sample size", c.RowsEach)
+	}
+	if c.Clusters > 0 {
+		rows := fmt.Sprintf("%d rows each", c.RowsMax)
+		if c.RowsMin != c.RowsMax {
+			rows = fmt.Sprintf("%d to %d rows each", c.RowsMin, c.RowsMax)
+		}
+		how += fmt.Sprintf(": here %d clusters of %s", c.Clusters, rows)
+	}
+	t := fmt.Sprintf("The cluster column %s was simulated as %s.", name, how)
+	if c.InterceptSD == 0 {
+		t += " The clusters have no effect (an intercept SD of 0"
+		if c.Stated {
+			t += ", as stated"
+		}
+		return t + "): given the predictors the rows of a cluster are independent, so the clusters change only the cluster-robust errors computed from them, and the numbers show no design effect of clustering. State a cluster effect (`assumptions.clusters.intercept_sd` or `latent_icc`) to simulate one."
+	}
+	t += fmt.Sprintf(" Each cluster adds a normal random intercept of standard deviation %s to its rows' linear predictors (every outcome of a row the same)", numfmt.Fixed(c.InterceptSD, 4))
+	icc := ""
+	if c.LatentICC != nil {
+		icc = fmt.Sprintf("sd^2 / (sd^2 + %s) = %s, %s the variance of the generating link's distribution", numfmt.Fixed(*c.LinkVariance, 3), strconv.FormatFloat(*c.LatentICC, 'g', 4, 64), numfmt.Fixed(*c.LinkVariance, 3))
+	}
+	switch {
+	case c.Effect == "latent_icc":
+		t += ", from the stated intraclass correlation on the latent scale (`assumptions.clusters.latent_icc`): " + icc + "."
+	case icc != "":
+		t += " (`assumptions.clusters.intercept_sd`): an intraclass correlation on the latent scale of " + icc + "."
+	default:
+		t += " (`assumptions.clusters.intercept_sd`)."
+	}
+	if c.DrawnSD != nil {
+		t += fmt.Sprintf(" The %d intercepts drawn here have a standard deviation of %s.", c.Clusters, numfmt.Fixed(*c.DrawnSD, 4))
+	}
+	return t + " The stated effects hold within a cluster; the plan's models have no cluster intercept, so they estimate population-averaged effects, smaller in size than the stated ones, and only cluster-robust errors count the rows' correlation within a cluster. The cutpoints were solved over rows with their intercepts drawn, so the stated category proportions are those of the whole population. Every predictor is drawn row by row, independently within a cluster: a predictor constant within clusters (a treatment assigned by cluster) has a far larger design effect than these data show."
 }
 
 // simulatedWeightsText says how the plan's weights column was simulated

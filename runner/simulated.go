@@ -26,6 +26,9 @@ type Simulation struct {
 	// truncated to their dictionary range, with the draws outside it that
 	// were drawn again.
 	Truncated []SimulatedTruncation `json:"truncated,omitempty"`
+	// Clusters says how the plan's cluster column was simulated (nil:
+	// the plan has none).
+	Clusters *SimulatedClusters `json:"clusters,omitempty"`
 }
 
 // SimulatedTruncation is a numeric column drawn from the normal of its
@@ -47,6 +50,32 @@ type SimulatedTruncation struct {
 	Copula     bool      `json:"copula,omitempty"`
 	Drawn      int       `json:"draws,omitempty"`
 	Redrawn    *int      `json:"redrawn,omitempty"`
+}
+
+// SimulatedClusters is how a plan's cluster column was simulated: runs of
+// consecutive rows, Number of them (the same at every sample size) or
+// RowsEach rows each, every cluster adding a normal intercept of
+// standard deviation InterceptSD to its rows' linear predictors, as
+// assumptions.clusters states (Stated) or by default (RowsEach 10, no
+// effect). Effect names what the plan stated of the effect: intercept_sd,
+// latent_icc, or none. LatentICC is InterceptSD^2 / (InterceptSD^2 +
+// LinkVariance), the variance of the generating link's distribution (nil
+// for a link without one). In a rehearsal: the clusters made of its rows,
+// the smallest and largest, and the standard deviation of the intercepts
+// drawn.
+type SimulatedClusters struct {
+	Column       string   `json:"column"`
+	Stated       bool     `json:"stated"`
+	Number       int      `json:"number,omitempty"`
+	RowsEach     int      `json:"rows_each,omitempty"`
+	Effect       string   `json:"effect_stated_as"`
+	InterceptSD  float64  `json:"intercept_sd"`
+	LatentICC    *float64 `json:"latent_icc,omitempty"`
+	LinkVariance *float64 `json:"link_variance,omitempty"`
+	Clusters     int      `json:"clusters,omitempty"`
+	RowsMin      int      `json:"rows_min,omitempty"`
+	RowsMax      int      `json:"rows_max,omitempty"`
+	DrawnSD      *float64 `json:"drawn_intercept_sd,omitempty"`
 }
 
 // SimulatedWeights is how a plan's weights column was simulated: drawn

@@ -135,6 +135,13 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		}
 	}
 	fmt.Fprintf(stdout, "report: %s\n", filepath.Join(dir, "power.html"))
+	for _, op := range pr.Outcomes {
+		for _, s := range op.Sizes {
+			if c := s.Clusters; c != nil && c.FewWarned.Count > 0 {
+				fmt.Fprintf(stderr, "warning: %s: outcome %s, n = %d (%d of %d replicates): %s\n", p.Path, op.Outcome, s.N, c.FewWarned.Count, c.FewWarned.Of, c.Warning)
+			}
+		}
+	}
 	return exitOK
 }
 

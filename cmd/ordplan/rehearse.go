@@ -118,6 +118,8 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	res.Simulated.Missing = sim.MissingRecord(written.Missing, analysed)
 	res.Simulated.Weights = sim.WeightsRecord()
 	res.Simulated.Truncated = sim.TruncationRecord(&written, rows)
+	res.Simulated.Clusters = sim.ClustersRecord(rows)
+	warnFound(p, res, stderr)
 	dec := runner.BuildDecisions(res)
 	files, err := render.Outputs(res, dec, nil)
 	if err != nil {

@@ -156,6 +156,9 @@ func (s *Sim) calibrationProbs(o *Outcome, rows []row) [][]float64 {
 			o.eta(x, e)
 			for m := range L {
 				L[m] = o.Cut[m] - e[m]
+				if s.calibU != nil {
+					L[m] -= s.calibU[i]
+				}
 			}
 			fit.CategoryProbabilities(s.Comparison, s.Backward, s.Link, L, p)
 		}

@@ -107,6 +107,24 @@ type SizeResult struct {
 	// simulated row has), with the first such message.
 	Failed       Rate   `json:"failed"`
 	FirstFailure string `json:"first_failure,omitempty"`
+	// Clusters: the clusters simulated at this size and those the runs
+	// used (nil: the plan has no cluster column).
+	Clusters *SizeClusters `json:"clusters,omitempty"`
+}
+
+// SizeClusters is the clusters of one outcome at one size: Simulated in
+// the n rows drawn, and the fewest and most among the rows the
+// replicates' runs used (the subset and dropped rows may empty some).
+// FewWarned counts the replicates whose run warned that its clustered
+// errors rest on fewer than FewBelow clusters (the run's own warning,
+// runner.Analysis.FewClusters; Warning is the first).
+type SizeClusters struct {
+	Simulated int    `json:"simulated"`
+	UsedMin   int    `json:"used_min"`
+	UsedMax   int    `json:"used_max"`
+	FewBelow  int    `json:"few_below"`
+	FewWarned Rate   `json:"few_warned"`
+	Warning   string `json:"warning,omitempty"`
 }
 
 // OutcomePower is one outcome's results at every size.
@@ -141,9 +159,12 @@ type PowerResult struct {
 	Weights *runner.SimulatedWeights `json:"weights,omitempty"`
 	// Truncated are the normal columns drawn truncated to their
 	// dictionary range (without counts: they differ by replicate).
-	Truncated  []runner.SimulatedTruncation `json:"truncated,omitempty"`
-	Replicates int                          `json:"replicates"`
-	Alpha      float64                      `json:"alpha"`
+	Truncated []runner.SimulatedTruncation `json:"truncated,omitempty"`
+	// Clusters says how the plan's cluster column was simulated (nil: the
+	// plan has none); each size's clusters are in its SizeResult.
+	Clusters   *runner.SimulatedClusters `json:"clusters,omitempty"`
+	Replicates int                       `json:"replicates"`
+	Alpha      float64                   `json:"alpha"`
 	// Multiplicity is the plan's correction of its hypotheses' p-values
 	// (inference.multiplicity: holm or benjamini_hochberg; "" for none):
 	// a hypothesis is rejected when its adjusted p-value is below Alpha,
@@ -174,6 +195,8 @@ type repOutcome struct {
 	holdsAt      []string // per hypothesis: where it holds (runner.HypothesisResult.HoldsAt)
 	separation   bool
 	notConverged bool
+	clusters     int    // in the rows the run used (-1: not known)
+	fewClusters  string // the run's warning of too few clusters, or ""
 }
 
 // Progress hears of the replicates of a power study as they finish: done
@@ -188,6 +211,14 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 	sim, err := New(p)
 	if err != nil {
 		return nil, err
+	}
+	simulated := make([]int, len(opt.Sizes)) // clusters at each size
+	if sim.Cluster != "" {
+		for i, n := range opt.Sizes {
+			if simulated[i], err = sim.Clusters(n); err != nil {
+				return nil, err
+			}
+		}
 	}
 	if opt.Alpha <= 0 {
 		opt.Alpha = 0.05
@@ -211,6 +242,7 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 	res.Missing = sim.MissingRecord(nil, 0)
 	res.Weights = sim.WeightsRecord()
 	res.Truncated = sim.TruncationRecord(nil, 0)
+	res.Clusters = sim.ClustersRecord(0)
 	res.SizeMeans = "rows drawn from the assumptions; every row is analysed (less any incomplete rows data.missing drops)"
 	if len(p.Subset) > 0 {
 		res.SizeMeans = "rows drawn from the assumptions, before the plan's subset: the rows analysed are those the subset keeps (subset_kept; less any incomplete rows data.missing drops)"
@@ -221,7 +253,7 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 	for _, oc := range p.Outcomes {
 		res.Outcomes = append(res.Outcomes, generating(p, oc, sim))
 	}
-	for _, n := range opt.Sizes {
+	for si, n := range opt.Sizes {
 		reps := make([]replicate, opt.Replicates)
 		var wg sync.WaitGroup
 		var mu sync.Mutex
@@ -254,7 +286,11 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 			res.SubsetKept = append(res.SubsetKept, keptRows(n, reps))
 		}
 		for oi := range res.Outcomes {
-			res.Outcomes[oi].Sizes = append(res.Outcomes[oi].Sizes, summarize(p, n, reps, oi))
+			sr := summarize(p, n, reps, oi)
+			if sim.Cluster != "" {
+				sr.Clusters = summarizeClusters(simulated[si], reps, oi)
+			}
+			res.Outcomes[oi].Sizes = append(res.Outcomes[oi].Sizes, sr)
 		}
 	}
 	return res, nil
@@ -287,8 +323,12 @@ func runReplicate(p *plan.Plan, sim *Sim, n, r int, path string, opt PowerOption
 		return replicate{err: strings.ReplaceAll(err.Error(), path, name), kept: written.Kept}
 	}
 	out := replicate{kept: written.Kept}
-	for _, or := range res.Outcomes {
-		ro := repOutcome{rejected: make([]int, len(p.Inference.Hypotheses)), holdsAt: make([]string, len(p.Inference.Hypotheses))}
+	for oi, or := range res.Outcomes {
+		ro := repOutcome{rejected: make([]int, len(p.Inference.Hypotheses)), holdsAt: make([]string, len(p.Inference.Hypotheses)), clusters: -1}
+		if an := res.Analysis; an != nil && oi < len(an.Outcomes) && or.Data != nil && sim.Cluster != "" {
+			ro.clusters = runner.ClusterCount(or.Data)
+			ro.fewClusters = an.FewClusters(an.Outcomes[oi], or.Data)
+		}
 		if or.Chosen != nil {
 			ro.chosen = or.Chosen.ID
 		} else {
@@ -391,6 +431,32 @@ func summarize(p *plan.Plan, n int, reps []replicate, oi int) SizeResult {
 		sr.EmptiedBy = append(sr.EmptiedBy, NoneShare{Cause: c, Share: rate(causes[c], R)})
 	}
 	return sr
+}
+
+// summarizeClusters sums up the clusters of outcome oi's runs at one
+// size, of which simulated were drawn.
+func summarizeClusters(simulated int, reps []replicate, oi int) *SizeClusters {
+	sc := &SizeClusters{Simulated: simulated, FewBelow: fit.FewClusters}
+	few, seen := 0, false
+	for _, rp := range reps {
+		if rp.err != "" || rp.outcomes[oi].clusters < 0 {
+			continue
+		}
+		ro := rp.outcomes[oi]
+		if !seen || ro.clusters < sc.UsedMin {
+			sc.UsedMin = ro.clusters
+		}
+		sc.UsedMax = max(sc.UsedMax, ro.clusters)
+		seen = true
+		if ro.fewClusters != "" {
+			few++
+			if sc.Warning == "" {
+				sc.Warning = ro.fewClusters
+			}
+		}
+	}
+	sc.FewWarned = rate(few, len(reps))
+	return sc
 }
 
 // byCount gives the keys of counts, the largest count first, ties in

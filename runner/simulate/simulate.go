@@ -92,7 +92,15 @@ type Sim struct {
 	weight  *Predictor
 	Offset  string // written as 0
 	Cluster string
-	seed    uint64
+	// The clusters of the cluster column: clusterNumber of them at every
+	// size, or (0) runs of clusterRows consecutive rows; each adds a
+	// normal intercept of SD clusterSD to its rows' linear predictors.
+	// calibU are the intercepts of the calibration rows (nil when
+	// clusterSD is 0), one independent draw per row.
+	clusterNumber, clusterRows int
+	clusterSD                  float64
+	calibU                     []float64
+	seed                       uint64
 }
 
 // New prepares the simulation of a plan with assumptions.
@@ -129,6 +137,13 @@ func New(p *plan.Plan) (*Sim, error) {
 		}
 		s.Predictors = append(s.Predictors, pr)
 	}
+	if s.Cluster != "" {
+		s.clusterRows = plan.DefaultClusterRows
+		if c := a.Clusters; c != nil {
+			s.clusterNumber, s.clusterRows = c.Number, c.RowsEach
+		}
+		s.clusterSD = a.Clusters.InterceptSD(link)
+	}
 	if err := s.correlate(a.Correlations); err != nil {
 		return nil, err
 	}
@@ -145,6 +160,15 @@ func New(p *plan.Plan) (*Sim, error) {
 	rows, err := s.calibrationSample()
 	if err != nil {
 		return nil, err
+	}
+	if s.clusterSD > 0 {
+		// The population the proportions describe: every row with its
+		// cluster's intercept, drawn here once per calibration row.
+		rng := rand.New(rand.NewPCG(s.seed, 0xc1a5ca11b))
+		s.calibU = make([]float64, len(rows))
+		for i := range s.calibU {
+			s.calibU[i] = s.clusterSD * rng.NormFloat64()
+		}
 	}
 	for _, oc := range p.Outcomes {
 		o, err := s.outcome(oc, rows)
@@ -787,6 +811,11 @@ func (s *Sim) calibrate(o *Outcome, X []float64, n int) error {
 	etas := make([]float64, n*q) // row-major n x q
 	for i := 0; i < n; i++ {
 		o.eta(X[i*C:(i+1)*C], etas[i*q:(i+1)*q])
+		if s.calibU != nil {
+			for m := 0; m < q; m++ {
+				etas[i*q+m] += s.calibU[i]
+			}
+		}
 	}
 	cum := make([]float64, q)
 	acc := 0.0
@@ -1047,6 +1076,14 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) (Written, error
 	rng := rand.New(rand.NewPCG(s.seed, uint64(n)<<32^replicate^0x5eed))
 	mrng := rand.New(rand.NewPCG(s.seed, uint64(n)<<32^replicate^0x6d155))
 	wrng := rand.New(rand.NewPCG(s.seed, uint64(n)<<32^replicate^0x3e1647))
+	var u []float64 // the clusters' intercepts (nil: no cluster effect)
+	if s.Cluster != "" {
+		G, err := s.Clusters(n)
+		if err != nil {
+			return Written{}, err
+		}
+		u = s.intercepts(n, replicate, G)
+	}
 	counts := make([]int, len(s.Missing))
 	met := 0
 	ys := make([]int, len(s.Outcomes))
@@ -1081,6 +1118,12 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) (Written, error
 			o.eta(c.x, c.e)
 			for m := range c.L {
 				c.L[m] = o.Cut[m] - c.e[m]
+			}
+			if u != nil {
+				ug := u[s.clusterOf(i, n)]
+				for m := range c.L {
+					c.L[m] -= ug
+				}
 			}
 			fit.CategoryProbabilities(s.Comparison, s.Backward, s.Link, c.L, c.p)
 			valid := true
@@ -1145,7 +1188,7 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) (Written, error
 			cells = append(cells, "0")
 		}
 		if s.Cluster != "" {
-			cells = append(cells, "c"+strconv.Itoa(i/10+1))
+			cells = append(cells, "c"+strconv.Itoa(s.clusterOf(i, n)+1))
 		}
 		for j, c := range cells {
 			if j > 0 {
