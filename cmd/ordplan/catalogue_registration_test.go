@@ -35,8 +35,12 @@ func assumed(effects, more string) string {
 	return "assumptions:\n  predictors: {a: {mean: 0, sd: 1}, b: {mean: 0, sd: 1}}\n  outcomes:\n    y:\n      proportions: [0.3, 0.4, 0.3]\n      effects: " + effects + "\n" + more
 }
 
+// clustered is goodPlan with a cluster column k (written by the
+// simulation) and cluster-robust errors.
+var clustered = edit("  file: d.csv\n", "  file: d.csv\n  cluster: k\n", "rules:", "covariance: clustered\nrules:")
+
 // registrationItems are the catalogue items of freezing and deviations.
-func registrationItems() []badInput {
+func registrationItems(dir string) []badInput {
 	changed := edit("{by: aic}", "{by: bic}")
 	return []badInput{
 		{id: "R1", name: "plan changed after freezing, no stated reason", args: []string{"run"}, plan: changed, code: 1, lines: true,
@@ -188,6 +192,47 @@ func registrationItems() []badInput {
 		{id: "A24", name: "simulated weights drawn from dictionary values below 0", args: []string{"rehearse"}, code: 1,
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  weights: w\n") + "dictionary:\n  a: {label: A}\n  b: {label: B}\n  w: {values: [2, -0.5, 1]}\n" + assumed("{a: 0.2}", ""),
 			want: []string{`A24.yaml:18:15: dictionary.w.values: the simulated weights (data.weights: w) are drawn from the dictionary's values, which include -0.5, but a weight is zero or more`}},
+		{id: "A25", name: "a cluster effect with a negative standard deviation", args: []string{"check", "--no-data"}, code: 1,
+			plan: clustered + assumed("{a: 0.2}", "  clusters: {number: 50, intercept_sd: -0.5}\n"),
+			want: []string{`A25.yaml:22:40: assumptions.clusters.intercept_sd: the standard deviation of the clusters' intercepts must be 0 or more, got -0.5 (0: no cluster effect)`}},
+		{id: "A25", name: "a latent intraclass correlation of 1", args: []string{"rehearse"}, code: 1,
+			plan: clustered + assumed("{a: 0.2}", "  clusters: {rows_each: 20, latent_icc: 1}\n"),
+			want: []string{`assumptions.clusters.latent_icc: an intraclass correlation on the latent scale must be at least 0 and below 1, got 1 (0: no cluster effect; at 1 the rows of a cluster would share one latent value)`}},
+		{id: "A26", name: "clusters stated in a plan without a cluster column", args: []string{"check", "--no-data"}, code: 1,
+			plan: goodPlan + assumed("{a: 0.2}", "  clusters: {number: 50}\n"),
+			want: []string{`assumptions.clusters: the plan has no cluster column (data.cluster), so there are no clusters to simulate: name the cluster column under data.cluster (and covariance: clustered for cluster-robust errors), or remove assumptions.clusters`}},
+		{id: "A26", name: "both the number and the size of the clusters", args: []string{"power", "--n", "100"}, code: 1,
+			plan: clustered + assumed("{a: 0.2}", "  clusters: {number: 50, rows_each: 10}\n"),
+			want: []string{`assumptions.clusters.rows_each: give number (the clusters, the same at every sample size) or rows_each (the rows of each cluster, so that the clusters grow with the sample size), not both`}},
+		{id: "A26", name: "a latent intraclass correlation under the cauchy link", args: []string{"check", "--no-data"}, code: 1,
+			plan: clustered + assumed("{a: 0.2}", "  link: cauchy\n  clusters: {latent_icc: 0.1}\n"),
+			want: []string{`assumptions.clusters.latent_icc: the generating link is "cauchy", whose distribution has no variance, so a latent intraclass correlation does not define the clusters' intercepts: give intercept_sd instead`}},
+		{id: "A27", name: "more clusters than the rows simulated", args: []string{"power", "--n", "200,40", "--replicates", "2"}, code: 1,
+			plan: clustered + assumed("{a: 0.2}", "  clusters: {number: 50}\n"),
+			want: []string{`A27.yaml: assumptions.clusters.number: 50 clusters cannot be made of the 40 rows simulated (n = 40): each cluster needs a row at least; state at most 40 clusters, or simulate more rows`}},
+		{id: "A27", name: "clusters so large that the rows simulated make one", args: []string{"rehearse", "--n", "25"}, code: 1,
+			plan: clustered + assumed("{a: 0.2}", "  clusters: {rows_each: 25}\n"),
+			want: []string{`A27.yaml: assumptions.clusters.rows_each: clusters of 25 rows make one cluster of the 25 rows simulated (n = 25), and clustered errors need at least 2 (about 40 to be trusted): state fewer rows in each cluster (below 25), or simulate more rows`}},
+		{id: "W17", name: "a power study whose clustered errors rest on too few clusters at some sizes", code: 0,
+			args: []string{"power", "--n", "100,400", "--replicates", "2", "--quiet", "--out", filepath.Join(dir, "W17-power")},
+			plan: clustered + assumed("{a: 0.2}", ""), want: []string{"report: "},
+			check: func(t *testing.T, dir, out, errs string) {
+				few := `W17.yaml: outcome y, n = 100 (2 of 2 replicates): data.cluster: column "k" holds 10 clusters in the 100 rows used, fewer than 40: cluster-robust standard errors tend to be too small`
+				if !strings.Contains(errs, few) || strings.Contains(errs, "n = 400") {
+					t.Errorf("power does not warn at n = 100 alone:\n%s", errs)
+				}
+				md, _ := os.ReadFile(filepath.Join(dir, "W17-power", "power.md"))
+				js, _ := os.ReadFile(filepath.Join(dir, "W17-power", "power.json"))
+				for _, w := range []string{"**Warning: at n = 100 the plan's clustered errors rest on fewer than 40 clusters**", "**Warning: at n = 100 the runs' clustered errors rest on fewer than 40 clusters** (2 of 2 replicates)",
+					"The cluster column `k` was simulated as runs of 10 consecutive rows, the default (the assumptions state no `clusters`)", "| simulated | 10 | 40 |"} {
+					if !strings.Contains(string(md), w) {
+						t.Errorf("power.md lacks %q", w)
+					}
+				}
+				if strings.Contains(string(md), "at n = 400 the") || !strings.Contains(string(js), `"few_warned": {`) || !strings.Contains(string(js), `"stated": false`) {
+					t.Errorf("power.md or power.json:\n%s", js)
+				}
+			}},
 		{id: "R5", name: "ordplan init over an existing file", args: []string{"init", "--header", "y,a"}, plan: goodPlan, code: 1,
 			want: []string{"init: R5.yaml already exists; ordplan init never overwrites a file"},
 			check: func(t *testing.T, dir, out, errs string) {

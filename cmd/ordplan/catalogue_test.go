@@ -1494,7 +1494,7 @@ func catalogue(dir string) (items []badInput) {
 		{id: "Q4", name: "TLS certificate without its key", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-cert", d("d.csv")}, code: 1,
 			want: []string{"a client certificate needs its key and a key its certificate (--queue-cert and --queue-key)"}},
 	}
-	items = append(items, registrationItems()...)
+	items = append(items, registrationItems(dir)...)
 	items = append(items, termItems(dir)...)
 	items = append(items, commandLineItems(dir)...)
 	return items
