@@ -189,7 +189,11 @@ func writeGenerating(d *doc, r *runner.Result) {
 		model = "cumulative " + s.Link
 	}
 	d.h(2, "The generating model (simulated data)")
-	d.p("Each outcome was drawn from a %s model with L_m = tau_m - x'b_m over the design columns x the plan's terms make (their constants set on a large sample of the simulated predictors); the stated effects became these coefficients, and the cutpoints were solved so that the stated category proportions hold. A fit of the same model on these data estimates them; other candidates estimate other quantities.", model)
+	if c := s.Clusters; c != nil && c.InterceptSD > 0 {
+		d.p("Each outcome was drawn from a %s model with L_m = tau_m - x'b_m - u_g over the design columns x the plan's terms make (their constants set on a large sample of the simulated predictors), u_g the intercept of the row's cluster of %s, normal with standard deviation %s; the stated effects became these coefficients, within a cluster, and the cutpoints were solved so that the stated category proportions hold over the clusters. A fit of the same model without the intercepts estimates smaller, population-averaged effects; other candidates estimate other quantities.", model, mdCode(c.Column), numfmt.Fixed(c.InterceptSD, 4))
+	} else {
+		d.p("Each outcome was drawn from a %s model with L_m = tau_m - x'b_m over the design columns x the plan's terms make (their constants set on a large sample of the simulated predictors); the stated effects became these coefficients, and the cutpoints were solved so that the stated category proportions hold. A fit of the same model on these data estimates them; other candidates estimate other quantities.", model)
+	}
 	for _, t := range s.Truth {
 		head := []string{"Parameter"}
 		for _, b := range t.Boundaries {

@@ -15,8 +15,16 @@
 // column and from a stream of its own, from its dictionary values (equally
 // often) or uniformly over its dictionary range, and is 1 when the
 // dictionary states neither (Sim.WeightsRecord says which; the reports
-// say it). The offset is 0, and cluster ids number consecutive groups of
-// ten rows (with no cluster effect).
+// say it). The offset is 0. The cluster column's ids number runs of
+// consecutive rows: assumptions.clusters.number of them at every size
+// (sizes differing by at most one), or runs of rows_each rows (10 by
+// default), so that their number grows with n (Sim.Clusters refuses n
+// rows that cannot hold them). Each cluster draws a normal intercept of
+// the stated standard deviation (intercept_sd, or from latent_icc through
+// the variance of the link's distribution; 0 by default: no cluster
+// effect) from a stream of its own, and every outcome of its rows adds it
+// to its linear predictors (Sim.ClustersRecord says how; the reports say
+// it, and a power study counts the runs' few-clusters warnings per size).
 //
 // Outcomes: the raw columns become design columns through runner/design,
 // the same path as real data, its data-determined constants (means, SDs,
@@ -28,7 +36,8 @@
 // backward, adjacent) and link with L_m = tau_m - x'b_m, the category
 // probabilities computed as a fit computes them. The cutpoints are solved
 // so that the category proportions averaged over the calibration sample
-// are the stated ones (one at a time for cumulative models, by Newton's
+// (each row with an intercept drawn, under a cluster effect) are the
+// stated ones (one at a time for cumulative models, by Newton's
 // method for the others); positive coefficients move the outcome towards
 // higher categories. The subset is applied by the ordinary reader.
 //
