@@ -191,6 +191,9 @@ func writeModelTable(d *doc, or *runner.OutcomeResult, sampling bool) {
 	if n := collinearNote(or); n != "" {
 		d.p("%s", n)
 	}
+	if n := nearZeroScaleNote(or); n != "" {
+		d.p("%s", n)
+	}
 	if c := criteriaChart(d, or, sampling); c != nil {
 		d.charts("Chart in report.html: AIC and BIC of every candidate model.", c)
 	}
@@ -258,6 +261,25 @@ func collinearWarning(flags []collinearFlags, one, many string) string {
 		out[i] = fmt.Sprintf("the slopes of %s have variance inflation %s in %s", mdCode(term), factor, which)
 	}
 	return fmt.Sprintf("**Warning**, near-collinearity: %s; %s.", strings.Join(out, "; "), fit.CollinearMeaning)
+}
+
+// nearZeroScaleNote warns, in one paragraph, of the candidate models in
+// which a constraint group's g is near zero (fit.Result.NearZeroScale):
+// one sentence per model and group, in grid order; "" when none is.
+func nearZeroScaleNote(or *runner.OutcomeResult) string {
+	var out []string
+	for _, f := range or.Fits {
+		if f.Auxiliary || f.Result == nil {
+			continue
+		}
+		for _, nz := range f.Result.NearZeroScale {
+			out = append(out, fmt.Sprintf("In %s, %s.", mdText(f.ID), mdText(nz.Reason)))
+		}
+	}
+	if len(out) == 0 {
+		return ""
+	}
+	return "**Warning**, near non-identification. " + strings.Join(out, " ")
 }
 
 func modelRow(f *runner.FitEntry) []string {

@@ -47,6 +47,9 @@ type FitRecord struct {
 	Starts      []StartJSON   `json:"starts,omitempty"`
 	StartsAgree int           `json:"starts_reaching_best,omitempty"`
 	PhiNotes    []string      `json:"phi_notes,omitempty"`
+	// NearZeroScale: the constraint groups whose g is near zero, where phi
+	// is near non-identification (fit.Result.CheckScale).
+	NearZeroScale []fit.NearZeroScale `json:"phi_near_non_identification,omitempty"`
 	// Collinear: the terms whose slopes' variance inflation reaches
 	// fit.InflationLimit (near-collinearity).
 	Collinear []fit.Inflation `json:"collinear,omitempty"`
@@ -67,8 +70,11 @@ type StartJSON struct {
 	Label       string   `json:"label"`
 	LogLik      *float64 `json:"loglik"`
 	ReachedBest bool     `json:"reached_best"`
-	Iterations  int      `json:"iterations"`
-	Reason      string   `json:"reason,omitempty"`
+	// Refitted: reached the best through a refit in another normalization
+	// of phi from where it stopped (fit.StartRecord.Refitted).
+	Refitted   bool   `json:"reached_by_refit,omitempty"`
+	Iterations int    `json:"iterations"`
+	Reason     string `json:"reason,omitempty"`
 }
 
 func num(x float64) *float64 {
@@ -85,10 +91,10 @@ func Record(r *fit.Result) FitRecord {
 		Status: string(r.Status), Message: r.Message, Converged: r.Converged, Iterations: r.Iterations,
 		MaxAbsScore: num(r.MaxAbsScore), NParams: r.NParams, NObs: r.NObs,
 		NegativeRows: r.NegativeRows, Condition: num(r.Condition), Separation: r.Separation, Flat: r.Flat,
-		StartsAgree: r.StartsAgreeing, PhiNotes: r.PhiNotes, Collinear: r.Collinear, Centred: r.Centred,
+		StartsAgree: r.StartsAgreeing, PhiNotes: r.PhiNotes, NearZeroScale: r.NearZeroScale, Collinear: r.Collinear, Centred: r.Centred,
 	}
 	for _, s := range r.Starts {
-		rec.Starts = append(rec.Starts, StartJSON{Label: s.Label, LogLik: num(s.LogLik), ReachedBest: s.ReachedBest, Iterations: s.Iterations, Reason: s.Reason})
+		rec.Starts = append(rec.Starts, StartJSON{Label: s.Label, LogLik: num(s.LogLik), ReachedBest: s.ReachedBest, Refitted: s.Refitted, Iterations: s.Iterations, Reason: s.Reason})
 	}
 	if r.MaximumKnown() {
 		// The maximum is finite (though phi may not be identified, or

@@ -336,6 +336,7 @@ func poolResults(rs []*fit.Result, obs float64, data []*fit.Data) (*fit.Result, 
 		return nil, nil, err
 	}
 	r.Collinear = poolCollinear(rs)
+	r.CheckScale()
 	return &r, pl, nil
 }
 

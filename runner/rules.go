@@ -359,7 +359,7 @@ func (env *ruleEnv) judge(r plan.Rule, f *FitEntry, alive []*FitEntry) (bool, st
 			return false, fmt.Sprintf("status %s: %s", res.Status, res.Message)
 		}
 		if len(res.Starts) > 0 {
-			return true, fmt.Sprintf("converged: best of %d starts, %d reaching it, max |score| %.2g", len(res.Starts), res.StartsAgreeing, res.MaxAbsScore)
+			return true, fmt.Sprintf("converged: best of %d starts, %d reaching it%s, max |score| %.2g", len(res.Starts), res.StartsAgreeing, refittedStarts(res), res.MaxAbsScore)
 		}
 		return true, fmt.Sprintf("converged in %d iterations, max |score| %.2g", res.Iterations, res.MaxAbsScore)
 	case plan.RuleRejectNegativeProbabilities:
@@ -958,7 +958,7 @@ func (env *ruleEnv) judgeUnstable(r plan.Rule, res *fit.Result) (bool, string) {
 			env.num("starts", float64(len(res.Starts)))
 			env.num("starts agreeing", float64(res.StartsAgreeing))
 			env.num("min_starts_agreeing", float64(r.MinStartsAgreeing))
-			s := fmt.Sprintf("best value reached from %d of %d starts", res.StartsAgreeing, len(res.Starts))
+			s := fmt.Sprintf("best value reached from %d of %d starts%s", res.StartsAgreeing, len(res.Starts), refittedStarts(res))
 			if res.StartsAgreeing < r.MinStartsAgreeing {
 				s += fmt.Sprintf(" < %d", r.MinStartsAgreeing)
 				keep = false
@@ -968,7 +968,37 @@ func (env *ruleEnv) judgeUnstable(r plan.Rule, res *fit.Result) (bool, string) {
 			parts = append(parts, s)
 		}
 	}
+	for _, nz := range res.NearZeroScale {
+		// Reported with the fit's quality, not a criterion of the rule.
+		parts = append(parts, fmt.Sprintf("note, not a criterion of this rule: g near zero, phi %snear non-identification (Wald test of g = 0: %s, not below %g)", groupOf(nz.Group), numfmt.PText(nz.Test.P), nz.Level))
+	}
 	return keep, strings.Join(parts, "; ")
+}
+
+// refittedStarts says how many of the starts counted as reaching the best
+// got there through a refit in another normalization of phi from where
+// they stopped (fit.StartRecord.Refitted): " (1 of them by refitting
+// ...)", or "" when none did.
+func refittedStarts(res *fit.Result) string {
+	n := 0
+	for _, s := range res.Starts {
+		if s.Refitted {
+			n++
+		}
+	}
+	if n == 0 {
+		return ""
+	}
+	return fmt.Sprintf(" (%d by refitting, with phi normalized by another equation, from where it stopped on the ridge g -> 0)", n)
+}
+
+// groupOf names a constraint group before a verb: "of group NAME ", or ""
+// for an unnamed one.
+func groupOf(name string) string {
+	if name == "" {
+		return ""
+	}
+	return "of group " + name + " "
 }
 
 // choose applies the final rule: smallest criterion, with a margin within

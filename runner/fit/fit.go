@@ -217,6 +217,9 @@ type Result struct {
 	// PhiOther: for constraint groups whose slopes vanish in equation 1 at
 	// the maximum (StatusNotIdentified), phi normalized by another equation.
 	PhiOther []PhiNormalization
+	// NearZeroScale: the constraint groups whose g is near zero at the
+	// maximum, where phi is near non-identification (CheckScale).
+	NearZeroScale []NearZeroScale
 
 	// score: the score at the estimates, in the coordinates of the
 	// iterations (nil when not known: a fit through another

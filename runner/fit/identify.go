@@ -4,6 +4,9 @@ import (
 	"fmt"
 	"math"
 	"strings"
+
+	"ordplan/internal/words"
+	"ordplan/render/numfmt"
 )
 
 // groupLabel names constraint group g in messages.
@@ -227,4 +230,79 @@ func (r *Result) PhiNormalized(g, ref int) (*PhiNormalization, error) {
 	out.Phi, out.PhiSE = est[:q], se[:q]
 	out.Gamma, out.GammaSE = est[q:], se[q:]
 	return out, nil
+}
+
+// ScaleNearZeroLevel is the level of the test by which the scale g of a
+// constraint group counts as near zero (CheckScale): g is near zero when
+// the Wald test that all of the group's g_k are 0 (its slopes in equation
+// 1, the normalization phi_1 = 1) does not reject at this level. The data
+// are then consistent with g = 0, where phi is not identified: a
+// confidence set of this level for a ratio phi_m = b_m / g whose
+// denominator is not distinguishable from zero is unbounded, so phi's
+// delta-method standard errors and intervals do not describe it.
+const ScaleNearZeroLevel = 0.05
+
+// NearZeroScale is a constraint group whose g is near zero at the maximum
+// (CheckScale): phi is near non-identification there.
+type NearZeroScale struct {
+	Group      string    `json:"group,omitempty"`
+	Predictors []string  `json:"predictors"`
+	Gamma      []float64 `json:"g"`
+	GammaSE    []float64 `json:"g_se"`
+	// Test is the Wald test of g = 0 (every g_k of the group).
+	Test  Test    `json:"wald_g_zero"`
+	Level float64 `json:"level"`
+	// LargestPhi is the phi of largest absolute value (equation PhiAt,
+	// 1-based), with its standard error.
+	LargestPhi   float64 `json:"largest_phi"`
+	LargestPhiSE float64 `json:"largest_phi_se"`
+	PhiAt        int     `json:"largest_phi_equation"`
+	Reason       string  `json:"reason"`
+}
+
+// CheckScale sets r.NearZeroScale to the constraint groups whose g is
+// near zero (ScaleNearZeroLevel) by the fit's covariance, whatever it is
+// (model-based, sandwich, pooled over imputed sets); nil for a fit without
+// usable estimates or a covariance, or without constraint groups of more
+// than one phi. Every fit of a constrained or stereotype model gets it at
+// the end of its search, and again when its covariance is replaced
+// (UseCovariance).
+func (r *Result) CheckScale() {
+	r.NearZeroScale = nil
+	P := len(r.Estimates)
+	if !r.OK() || r.J < 3 || len(r.Phi) == 0 || len(r.Cov) != P*P {
+		return
+	}
+	ly, err := newLayout(r.Model, r.J, r.Predictors)
+	if err != nil || len(ly.params) != P {
+		return
+	}
+	for g, ks := range ly.groups {
+		nz := NearZeroScale{Group: ly.gnames[g], Level: ScaleNearZeroLevel}
+		R := make([][]float64, len(ks))
+		for i, k := range ks {
+			s := ly.slope[k]
+			R[i] = make([]float64, P)
+			R[i][s] = 1
+			nz.Predictors = append(nz.Predictors, r.Predictors[k])
+			nz.Gamma = append(nz.Gamma, r.Estimates[s])
+			nz.GammaSE = append(nz.GammaSE, r.StdErrors[s])
+		}
+		x, err := waldStat(R, r.Estimates, r.Cov, r.Clusters)
+		if err != nil {
+			continue
+		}
+		nz.Test = chi2Test(TestWald.String(), x, len(R))
+		if !(nz.Test.P >= ScaleNearZeroLevel) {
+			continue
+		}
+		for j := 1; j < r.J-1; j++ {
+			if i := ly.phiIndex[g][j]; math.Abs(r.Estimates[i]) > math.Abs(nz.LargestPhi) || j == 1 {
+				nz.LargestPhi, nz.LargestPhiSE, nz.PhiAt = r.Estimates[i], r.StdErrors[i], j+1
+			}
+		}
+		nz.Reason = fmt.Sprintf("phi %s is near non-identification: g is near zero (the Wald test of g = 0, the slopes of %s in equation 1 where phi_1 = 1, gives chi-square %s on %d df, %s, not below %g), so the data are consistent with g = 0, where phi is not identified; phi (phi_%d = %.3g, standard error %.3g) and its standard errors and intervals are not to be trusted, while the effects phi_m g_k remain estimated",
+			groupLabel(ly, g), words.AndList(nz.Predictors), numfmt.Stat(x), len(R), numfmt.PText(nz.Test.P), ScaleNearZeroLevel, nz.PhiAt, nz.LargestPhi, nz.LargestPhiSE)
+		r.NearZeroScale = append(r.NearZeroScale, nz)
+	}
 }

@@ -3,6 +3,7 @@ package fit
 import (
 	"fmt"
 	"math"
+	"strings"
 )
 
 // StatusNotIdentified: the log-likelihood has a finite maximum, but the
@@ -18,9 +19,13 @@ type StartRecord struct {
 	LogLik      float64 // log-likelihood at the end (NaN: no valid point, or abandoned on the approximation alone before any pass over the data)
 	MaxAbsScore float64 // largest absolute score there
 	ReachedBest bool    // within 1e-6 of the best log-likelihood
-	Status      Status  // StatusOK: converged; StatusNotIdentified: stationary but flat; else StatusNotConverged
-	Iterations  int     // Newton iterations on the data (0 when the start shared another's fit or was abandoned on the approximation alone)
-	Reason      string  // why the Newton iterations stopped
+	// Refitted: the start reached the best through the refit, in another
+	// normalization of phi, from where it stopped on the ridge g -> 0
+	// (countStart; LogLik is then the best, Reason says where it stopped).
+	Refitted   bool
+	Status     Status // StatusOK: converged; StatusNotIdentified: stationary but flat; else StatusNotConverged
+	Iterations int    // Newton iterations on the data (0 when the start shared another's fit or was abandoned on the approximation alone)
+	Reason     string // why the Newton iterations stopped
 	// Screened: the start was first carried to a maximum of the quadratic
 	// approximation of the log-likelihood around the unconstrained partial
 	// fit, and the data fit (if any) began there.
@@ -160,8 +165,13 @@ func multiStart(d *Data, m Model, ly *layout, pr *problem, opt Options, sh *shar
 	if err != nil {
 		return nil, err
 	}
+	// from: the log-likelihood at which the best start stopped, when the
+	// reported maximum was reached by refitting from there in another
+	// normalization (NaN otherwise); how says which.
+	from, how := math.NaN(), ""
 	if refs := ridgeRefs(res, ly, best, aux.sd); refs != nil {
 		if alt, st := aux.normalizedFit(src, d, m, ly, pr, res, best, refs, opt); alt != nil {
+			from, how = best.ll, normalizationText(ly, refs)
 			res, best = alt, st
 		}
 	}
@@ -173,16 +183,56 @@ func multiStart(d *Data, m Model, ly *layout, pr *problem, opt Options, sh *shar
 	}
 	res.Starts = make([]StartRecord, len(byStart))
 	for i, r := range byStart {
-		res.Starts[i] = r.rec
-		if !math.IsNaN(r.rec.LogLik) && math.Abs(r.rec.LogLik-top) <= sameLL {
-			res.Starts[i].ReachedBest = true
+		res.Starts[i] = countStart(r.rec, top, from, how)
+		if res.Starts[i].ReachedBest {
 			res.StartsAgreeing++
 		}
 	}
 	if res.Status != StatusNotIdentified {
 		markIdentification(res, ly, pr, best, aux.sd, opt)
 	}
+	res.CheckScale()
 	return res, nil
+}
+
+// countStart marks a start's record as reaching the reported maximum top:
+// when it ended within sameLL of it, or, when top was reached by refitting
+// from where the best start stopped (at log-likelihood from; NaN when no
+// refit was made) in another normalization (how), when it ended within
+// sameLL of that point, from which the same refit reaches top. Such a
+// start's log-likelihood becomes top and its reason says where it stopped
+// and how the maximum was reached from there.
+func countStart(rec StartRecord, top, from float64, how string) StartRecord {
+	if math.IsNaN(rec.LogLik) {
+		return rec
+	}
+	if math.Abs(rec.LogLik-top) <= sameLL {
+		rec.ReachedBest = true
+		return rec
+	}
+	if !math.IsNaN(from) && math.Abs(rec.LogLik-from) <= sameLL {
+		rec.Reason = fmt.Sprintf("%s; stopped at log-likelihood %.6f, and refitted from there with %s it reached the best, %.6f", rec.Reason, rec.LogLik, how, top)
+		rec.LogLik, rec.ReachedBest, rec.Refitted = top, true, true
+	}
+	return rec
+}
+
+// normalizationText names the normalization refs of ridgeRefs: "phi_4 = 1",
+// "phi_3 = 1 of group g2", one clause per group normalized by an equation
+// other than the first.
+func normalizationText(ly *layout, refs []int) string {
+	var out []string
+	for g, r := range refs {
+		if r == 0 {
+			continue
+		}
+		s := fmt.Sprintf("phi_%d = 1", r+1)
+		if len(refs) > 1 {
+			s += " " + groupLabel(ly, g)
+		}
+		out = append(out, s)
+	}
+	return "the common factor normalized by " + strings.Join(out, ", ")
 }
 
 // ridgeRefs detects groups whose equation-1 slopes vanish at the best point

@@ -213,6 +213,7 @@ func (r *Result) UseCovariance(V []float64, info SandwichInfo) {
 	for i := 0; i < P; i++ {
 		r.StdErrors[i] = math.Sqrt(math.Max(V[i*P+i], 0))
 	}
+	r.CheckScale()
 }
 
 // FewClusters is the number of clusters below which cluster-robust errors
