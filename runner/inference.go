@@ -401,8 +401,9 @@ func hypothesisHoldsAt(text string, or *OutcomeResult) string {
 		}
 	}
 	var at []string
+	ranges := or.fittedRanges()
 	for _, k := range terms {
-		if w := holdsAt(dz, k); w != "" {
+		if w := holdsAt(dz, k, ranges); w != "" {
 			at = append(at, dz.Terms[k].Name+": "+w)
 		}
 	}

@@ -6,6 +6,9 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+
+	"ordplan/runner/data"
+	"ordplan/runner/design"
 )
 
 // NewRowOutside is a new row to predict that lies outside the population
@@ -40,24 +43,7 @@ func flagNewRows(an *Analysis, or *OutcomeResult, nr *NewRows) {
 		nr.Notes = append(nr.Notes, fmt.Sprintf("The new rows have no column %s, so they are not checked against the plan's subset condition %s (%s).", c.Column, c.String(), c.Key))
 	}
 	S := len(dz.Sources)
-	// The range of each numeric column over the rows used.
-	ref := or.Data
-	if or.Observed != nil {
-		ref = or.Observed
-	}
-	lo, hi := make([]float64, S), make([]float64, S)
-	for s := range dz.Sources {
-		lo[s], hi[s] = math.Inf(1), math.Inf(-1)
-		j := slices.Index(ref.Predictors, dz.Sources[s].Name)
-		if j < 0 || dz.Sources[s].Cat != nil {
-			continue
-		}
-		for i := 0; i < ref.N; i++ {
-			if v := ref.X[i*ref.K+j]; !math.IsNaN(v) {
-				lo[s], hi[s] = math.Min(lo[s], v), math.Max(hi[s], v)
-			}
-		}
-	}
+	fitted := or.fittedRanges()
 	col := func(name string) int { return slices.Index(rows.Header, name) }
 	num := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
 	for i := 0; i < rows.N; i++ {
@@ -91,8 +77,8 @@ func flagNewRows(an *Analysis, or *OutcomeResult, nr *NewRows) {
 					why = append(why, fmt.Sprintf("%s: %s %s is not one of the declared values %s", b.Key, src.Name, num(v), strings.Join(vals, ", ")))
 				}
 			}
-			if lo[s] <= hi[s] && (v < lo[s] || v > hi[s]) {
-				why = append(why, fmt.Sprintf("extrapolation: %s %s is beyond the range of the rows the model was fitted to, %s to %s", src.Name, num(v), num(lo[s]), num(hi[s])))
+			if w := fitted.extrapolation(s, v); w != "" {
+				why = append(why, w)
 			}
 		}
 		nr.Outside = append(nr.Outside, why)
@@ -100,4 +86,58 @@ func flagNewRows(an *Analysis, or *OutcomeResult, nr *NewRows) {
 			nr.Flagged = append(nr.Flagged, NewRowOutside{Line: rows.Lines[i], Reasons: why})
 		}
 	}
+}
+
+// sourceRanges is the range of each numeric source of a design over the
+// rows the models were fitted to (on imputed data, of the observed
+// values), each found when first asked for.
+type sourceRanges struct {
+	dz     *design.Design
+	ref    *data.Dataset
+	lo, hi []float64
+	done   []bool
+}
+
+// fittedRanges gives the ranges of the outcome's numeric sources over the
+// rows used (or.Observed on imputed data).
+func (or *OutcomeResult) fittedRanges() *sourceRanges {
+	ref := or.Data
+	if or.Observed != nil {
+		ref = or.Observed
+	}
+	return newSourceRanges(or.Design, ref)
+}
+
+func newSourceRanges(dz *design.Design, ref *data.Dataset) *sourceRanges {
+	S := len(dz.Sources)
+	return &sourceRanges{dz: dz, ref: ref, lo: make([]float64, S), hi: make([]float64, S), done: make([]bool, S)}
+}
+
+// extrapolation is the one decision that a value v of numeric source s
+// lies outside the data: beyond the range of the rows the model was
+// fitted to. It says so, led by the word extrapolation, or returns ""
+// (inside, a categorical source, or no rows to judge by). New rows to
+// predict (flagNewRows) and where an effect holds (holdsAt) read it.
+func (r *sourceRanges) extrapolation(s int, v float64) string {
+	if r == nil || r.ref == nil {
+		return ""
+	}
+	src := r.dz.Sources[s]
+	if !r.done[s] {
+		r.done[s] = true
+		r.lo[s], r.hi[s] = math.Inf(1), math.Inf(-1)
+		if j := slices.Index(r.ref.Predictors, src.Name); j >= 0 && src.Cat == nil {
+			for i := 0; i < r.ref.N; i++ {
+				if x := r.ref.X[i*r.ref.K+j]; !math.IsNaN(x) {
+					r.lo[s], r.hi[s] = math.Min(r.lo[s], x), math.Max(r.hi[s], x)
+				}
+			}
+		}
+	}
+	lo, hi := r.lo[s], r.hi[s]
+	if !(lo <= hi) || (v >= lo && v <= hi) {
+		return ""
+	}
+	num := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+	return fmt.Sprintf("extrapolation: %s %s is beyond the range of the rows the model was fitted to, %s to %s", src.Name, num(v), num(lo), num(hi))
 }

@@ -42,13 +42,19 @@ type ColumnReading struct {
 // ColumnReadings gives the reading of every design column of the outcome,
 // in design order.
 func (or *OutcomeResult) ColumnReadings() []ColumnReading {
-	return columnReadings(or.Design, or.Data, or.FitData)
+	ref := or.Data
+	if or.Observed != nil {
+		ref = or.Observed
+	}
+	return columnReadings(or.Design, or.Data, or.FitData, ref)
 }
 
 // columnReadings gives the reading of every column of design dz, whose raw
-// columns are those of raw (nil: no column is read as 1 against 0); without
-// a design, fd's columns are plain numeric columns.
-func columnReadings(dz *design.Design, raw *data.Dataset, fd *fit.Data) []ColumnReading {
+// columns are those of raw (nil: no column is read as 1 against 0), where
+// a slope holds judged against the ranges of the rows of ref (the rows
+// fitted; their observed values on imputed data); without a design, fd's
+// columns are plain numeric columns.
+func columnReadings(dz *design.Design, raw *data.Dataset, fd *fit.Data, ref *data.Dataset) []ColumnReading {
 	if dz == nil {
 		if fd == nil {
 			return nil
@@ -63,8 +69,9 @@ func columnReadings(dz *design.Design, raw *data.Dataset, fd *fit.Data) []Column
 		}
 	}
 	var out []ColumnReading
+	ranges := newSourceRanges(dz, ref)
 	for k := range dz.Terms {
-		where := holdsAt(dz, k)
+		where := holdsAt(dz, k, ranges)
 		for _, r := range per[k] {
 			r.Where = where
 			out = append(out, r)
@@ -75,12 +82,14 @@ func columnReadings(dz *design.Design, raw *data.Dataset, fd *fit.Data) []Column
 
 // holdsAt says where the effect of term k of dz holds when the term
 // enters an interaction with other terms: those terms' columns at 0
-// ("female = 0", "street_type = residential, x = 0"); "" otherwise. The
-// odds ratios and the plan's hypotheses say it in these words.
-func holdsAt(dz *design.Design, k int) string {
+// ("female = 0", "street_type = residential, x = 0"), each value outside
+// the ranges of the rows fitted flagged as an extrapolation (zeroText);
+// "" otherwise. The odds ratios and the plan's hypotheses say it in these
+// words.
+func holdsAt(dz *design.Design, k int, ranges *sourceRanges) string {
 	var at []string
 	for _, p := range interactionPartners(dz, k) {
-		at = append(at, zeroText(dz, p))
+		at = append(at, zeroText(dz, p, ranges))
 	}
 	return strings.Join(at, ", ")
 }
@@ -272,8 +281,13 @@ func containsAll(set, sub []int) bool {
 }
 
 // zeroText says where the columns of term k are 0: "street_type =
-// residential", "x = 2.5", "the columns of age2 at 0".
-func zeroText(dz *design.Design, k int) string {
+// residential", "x = 2.5", "x = 0 (the columns of x.s at 0)" for a basis
+// whose columns are all 0 at one raw value (design.Term.ZeroAt), "the
+// columns of age2 at 0, which no value of age gives" for one whose are
+// not. A raw value outside the ranges of the rows fitted is flagged as the
+// new rows' values are (sourceRanges.extrapolation): the effect then holds
+// only by extrapolation.
+func zeroText(dz *design.Design, k int, ranges *sourceRanges) string {
 	t := &dz.Terms[k]
 	if t.Kind == design.KindCategorical {
 		c := dz.Sources[t.Source].Cat
@@ -288,24 +302,25 @@ func zeroText(dz *design.Design, k int) string {
 	}
 	tr := t.Transform
 	col := dz.Sources[t.Source].Name
-	if tr.Poly > 0 || tr.Spline() {
-		return "the columns of " + t.Name + " at 0"
+	basis := tr.Poly > 0 || tr.Spline()
+	x, ok := t.ZeroAt()
+	if !ok {
+		if basis {
+			return fmt.Sprintf("the columns of %s at 0, which no value of %s gives", t.Name, col)
+		}
+		// A square root centred below 0.
+		return fmt.Sprintf("sqrt(%s) = %s, which no value of %s gives", col, strconv.FormatFloat(tr.CentreAt, 'g', 6, 64), col)
 	}
-	u := 0.0 // the value of log/sqrt at which the column is 0
-	switch tr.Centre {
-	case "mean":
-		u = t.Mean
-	case "value":
-		u = tr.CentreAt
+	var notes []string
+	if basis {
+		notes = append(notes, "the columns of "+t.Name+" at 0")
 	}
-	num := func(x float64) string { return strconv.FormatFloat(x, 'g', 6, 64) }
-	switch {
-	case tr.Log:
-		return fmt.Sprintf("%s = %s", col, num(math.Exp(u)-tr.Shift))
-	case tr.Sqrt && u >= 0:
-		return fmt.Sprintf("%s = %s", col, num(u*u))
-	case tr.Sqrt:
-		return fmt.Sprintf("sqrt(%s) = %s", col, num(u))
+	if w := ranges.extrapolation(t.Source, x); w != "" {
+		notes = append(notes, w)
 	}
-	return fmt.Sprintf("%s = %s", col, num(u))
+	s := fmt.Sprintf("%s = %s", col, strconv.FormatFloat(x, 'g', 6, 64))
+	if len(notes) > 0 {
+		s += " (" + strings.Join(notes, "; ") + ")"
+	}
+	return s
 }

@@ -160,3 +160,55 @@ inference:
 		t.Errorf("tested: %v", seen)
 	}
 }
+
+// Where an effect holds is a raw value of each term it interacts with: for
+// a spline, the value at which all of its columns are 0, or the words
+// that no value gives that; a value outside the range of the rows fitted
+// is flagged in the words the new rows' extrapolation uses (one decision,
+// sourceRanges.extrapolation), here age 0 against ages 20 to 70 of the
+// invented trial.
+func TestHoldsAtFlagsExtrapolation(t *testing.T) {
+	const src = `version: 1
+title: holds at a raw value
+data: {file: trial.csv}
+outcomes: [{column: relief, categories: [none, slight, moderate, complete]}]
+categorical:
+  treat: {levels: [placebo, drug]}
+predictors:
+  - treat
+  - TERM
+  - {interact: [treat, a]}
+models: {approaches: [cumulative], effects: [parallel]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: aic}
+inference:
+  hypotheses: ["treat = 0"]
+`
+	trial := inventedTrial(300)
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, line := range strings.Split(strings.TrimSpace(trial), "\n")[1:] {
+		v, err := strconv.ParseFloat(strings.Split(line, ",")[3], 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		lo, hi = math.Min(lo, v), math.Max(hi, v)
+	}
+	beyond := "extrapolation: age 0 is beyond the range of the rows the model was fitted to, " + strconv.FormatFloat(lo, 'g', -1, 64) + " to " + strconv.FormatFloat(hi, 'g', -1, 64)
+	for _, c := range []struct{ term, want string }{
+		{"{name: a, column: age, spline: {knots: [30, 45, 60]}}", "age = 0 (the columns of a at 0; " + beyond + ")"},
+		{"{name: a, column: age, centre: mean, spline: {quantiles: [0.1, 0.5, 0.9]}}", "the columns of a at 0, which no value of age gives"},
+		{"{name: a, column: age}", "age = 0 (" + beyond + ")"},
+		{"{name: a, column: age, centre: 45}", "age = 45"},
+	} {
+		or := runPlan(t, writePlan(t, strings.Replace(src, "TERM", c.term, 1), map[string]string{"trial.csv": trial}), 0).Outcomes[0]
+		if len(or.Hypotheses) != 1 || or.Hypotheses[0].HoldsAt != c.want {
+			t.Errorf("%s: hypotheses %+v, want holds at %q", c.term, or.Hypotheses, c.want)
+		}
+		for _, r := range or.ColumnReadings() {
+			if r.Column == "treat.drug" && r.Where != c.want {
+				t.Errorf("%s: the odds ratio of treat.drug holds at %q, want %q", c.term, r.Where, c.want)
+			}
+		}
+	}
+}

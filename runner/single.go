@@ -85,7 +85,7 @@ func FitOneChecked(s SingleFit) (*fit.Result, *data.Dataset, *SingleChecks, erro
 		null, _ := fit.FitNull(ld.FitData, res.Model, a.Fit)
 		o = overallFit(ld.FitData, res, null, a.Errors.Sampling)
 	}()
-	c := &SingleChecks{Readings: columnReadings(ld.Design, ld.Data, ld.FitData)}
+	c := &SingleChecks{Readings: columnReadings(ld.Design, ld.Data, ld.FitData, ld.Data)}
 	c.Lipsitz, c.PatternSplit = goodnessOfFit(ld, res, a.Fit, a.Errors.Sampling)
 	<-done
 	c.Overall = OverallRecord{Model: res.Name, Null: fit.ModelID(res.Model.ComparisonName(), "thresholds-only", res.Model.Link), Overall: o}

@@ -360,3 +360,49 @@ func numList(xs []float64) string {
 	}
 	return "[" + strings.Join(s, ", ") + "]"
 }
+
+// ZeroAt gives the raw value of numeric term t's data column at which
+// every column of the term is 0, and whether there is one. The value u
+// after log/sqrt, centring and scaling is 0 for a plain term, a raw
+// polynomial and a natural spline (whose first column is u); there the
+// other columns of a raw polynomial are 0, and those of a spline when u =
+// 0 is at or below its first knot (each truncated cube is 0 at or below
+// its knot). An orthogonal polynomial's first column is 0 at u = Alpha_0
+// only, where the second is not (-Norm2_1 / Norm2_0 / sqrt(Norm2_2)), so
+// only one of degree 1 has such a value. u is turned back into the raw
+// value: times SD, plus the centre, then exp less the shift or the square
+// (no raw value when a square root would be negative).
+func (t *Term) ZeroAt() (float64, bool) {
+	tr := t.Transform
+	u := 0.0
+	switch {
+	case tr.Poly > 0 && !tr.PolyRaw:
+		if tr.Poly > 1 || len(t.Alpha) < 1 {
+			return math.NaN(), false
+		}
+		u = t.Alpha[0]
+	case t.Knots != nil:
+		if t.Knots[0] < 0 {
+			return math.NaN(), false
+		}
+	}
+	if tr.Scale {
+		u *= t.SD
+	}
+	switch tr.Centre {
+	case "mean":
+		u += t.Mean
+	case "value":
+		u += tr.CentreAt
+	}
+	switch {
+	case tr.Log:
+		return math.Exp(u) - tr.Shift, true
+	case tr.Sqrt:
+		if u < 0 {
+			return math.NaN(), false
+		}
+		return u * u, true
+	}
+	return u, true
+}
