@@ -265,7 +265,8 @@ func collinearWarning(flags []collinearFlags, one, many string) string {
 
 // nearZeroScaleNote warns, in one paragraph, of the candidate models in
 // which a constraint group's g is near zero (fit.Result.NearZeroScale):
-// one sentence per model and group, in grid order; "" when none is.
+// one clause per model and group, in grid order, then what it means,
+// once; "" when none is.
 func nearZeroScaleNote(or *runner.OutcomeResult) string {
 	var out []string
 	for _, f := range or.Fits {
@@ -273,13 +274,13 @@ func nearZeroScaleNote(or *runner.OutcomeResult) string {
 			continue
 		}
 		for _, nz := range f.Result.NearZeroScale {
-			out = append(out, fmt.Sprintf("In %s, %s.", mdText(f.ID), mdText(nz.Reason)))
+			out = append(out, fmt.Sprintf("in %s, %s", mdText(f.ID), mdText(nz.Clause())))
 		}
 	}
 	if len(out) == 0 {
 		return ""
 	}
-	return "**Warning**, near non-identification. " + strings.Join(out, " ")
+	return fmt.Sprintf("**Warning**, phi near non-identification: %s. %s.", strings.Join(out, "; "), mdText(capitalize(fit.ScaleNearZeroMeaning)))
 }
 
 func modelRow(f *runner.FitEntry) []string {

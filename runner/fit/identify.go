@@ -260,6 +260,22 @@ type NearZeroScale struct {
 	Reason       string  `json:"reason"`
 }
 
+// ScaleNearZeroMeaning says what g near zero is and means, in the words
+// of every report of it.
+var ScaleNearZeroMeaning = fmt.Sprintf("a constraint group's g, its slopes in equation 1 (where phi_1 = 1), counts as near zero when the Wald test of g = 0 does not reject at %g; the data are then consistent with g = 0, where phi is not identified, so phi and its standard errors and intervals are not to be trusted, while the effects phi_m g_k remain estimated", ScaleNearZeroLevel)
+
+// Clause says which g is near zero and by how much: "g of arm and sex.F
+// is near zero (Wald test of g = 0: chi-square 0.033 on 2 df, p =
+// 0.9837; phi_4 = 16.2, standard error 89.4)".
+func (nz NearZeroScale) Clause() string {
+	of := words.AndList(nz.Predictors)
+	if nz.Group != "" {
+		of = fmt.Sprintf("group %s (%s)", nz.Group, of)
+	}
+	return fmt.Sprintf("g of %s is near zero (Wald test of g = 0: chi-square %s on %d df, %s; phi_%d = %.3g, standard error %.3g)",
+		of, numfmt.Stat(nz.Test.Chi2), nz.Test.DF, numfmt.PText(nz.Test.P), nz.PhiAt, nz.LargestPhi, nz.LargestPhiSE)
+}
+
 // CheckScale sets r.NearZeroScale to the constraint groups whose g is
 // near zero (ScaleNearZeroLevel) by the fit's covariance, whatever it is
 // (model-based, sandwich, pooled over imputed sets); nil for a fit without
@@ -301,8 +317,7 @@ func (r *Result) CheckScale() {
 				nz.LargestPhi, nz.LargestPhiSE, nz.PhiAt = r.Estimates[i], r.StdErrors[i], j+1
 			}
 		}
-		nz.Reason = fmt.Sprintf("phi %s is near non-identification: g is near zero (the Wald test of g = 0, the slopes of %s in equation 1 where phi_1 = 1, gives chi-square %s on %d df, %s, not below %g), so the data are consistent with g = 0, where phi is not identified; phi (phi_%d = %.3g, standard error %.3g) and its standard errors and intervals are not to be trusted, while the effects phi_m g_k remain estimated",
-			groupLabel(ly, g), words.AndList(nz.Predictors), numfmt.Stat(x), len(R), numfmt.PText(nz.Test.P), ScaleNearZeroLevel, nz.PhiAt, nz.LargestPhi, nz.LargestPhiSE)
+		nz.Reason = fmt.Sprintf("phi %s is near non-identification: %s; %s", groupLabel(ly, g), nz.Clause(), ScaleNearZeroMeaning)
 		r.NearZeroScale = append(r.NearZeroScale, nz)
 	}
 }

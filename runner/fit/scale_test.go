@@ -93,7 +93,7 @@ func TestScaleNearZero(t *testing.T) {
 			if !near(nz.Test.Chi2, w, 1e-8, 1e-10) || nz.Test.DF != 2 || !near(nz.Test.P, p, 1e-8, 1e-10) {
 				t.Errorf("Wald test %+v, by hand %.10g (p %.10g)", nz.Test, w, p)
 			}
-			for _, want := range []string{"near non-identification", "g is near zero", "not below 0.05", "x1 and x2"} {
+			for _, want := range []string{"near non-identification", "g of x1 and x2 is near zero", "does not reject at 0.05"} {
 				if !strings.Contains(nz.Reason, want) {
 					t.Errorf("reason %q lacks %q", nz.Reason, want)
 				}
