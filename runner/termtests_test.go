@@ -105,7 +105,7 @@ func TestTermTestsAgainstGlm(t *testing.T) {
 // must be base R's glm: the difference of the deviances of y ~ infl and
 // y ~ infl + type + cont, and b' V^-1 b over the type and cont
 // coefficients from coef() and vcov() (script
-// runner/testdata/rcheck/termgroup.R). Data: the Copenhagen housing
+// runner/testdata/rcheck/termtests.R). Data: the Copenhagen housing
 // table (Madsen 1976), published, in testdata/reference.
 func TestGroupTestAgainstGlm(t *testing.T) {
 	rscript.Require(t)
@@ -120,7 +120,7 @@ func TestGroupTestAgainstGlm(t *testing.T) {
 	if g.Group == nil || *g.Group != "" || g.Term != "the constraint group" || g.Bound != "" || len(g.Columns) != 4 {
 		t.Fatalf("the group's test: %+v", g)
 	}
-	vals := rscript.Run(t, dir, "testdata/rcheck/termgroup.R")
+	vals := rscript.Run(t, dir, "testdata/rcheck/termtests.R")
 	for _, c := range []struct {
 		kind string
 		got  fit.Test

@@ -26,3 +26,15 @@ term("infl", y ~ type + cont, "infl")
 term("type", y ~ infl + cont + infl:cont, "type")
 term("cont", y ~ infl + type, "cont")
 term("infl_cont", y ~ infl + type + cont, ":")
+# The joint test of a whole constraint group with two categories: the
+# model y ~ infl + type + cont, the group type and cont. With one boundary
+# there is no common factor, so the constrained model is this logistic
+# regression, and the group's tests are the difference of the deviances
+# of y ~ infl and the model, and b' V^-1 b over the type and cont
+# coefficients.
+main <- fitted(y ~ infl + type + cont)
+r <- fitted(y ~ infl)
+bm <- coef(main)
+k <- grep("type|cont", names(bm))
+out("lr_group", c(deviance(r) - deviance(main), length(bm) - length(coef(r))))
+out("wald_group", c(t(bm[k]) %*% solve(vcov(main)[k, k], bm[k]), length(k)))
