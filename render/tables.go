@@ -223,6 +223,9 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 			}
 			note = "pooled over imputed sets (" + t.Pooled + "): chi2 is df x F, p from F(df, " + df2 + ")"
 		}
+		if t.Warning != "" {
+			note += "; " + t.Warning
+		}
 		rows = append(rows, []string{family, approach, link, scope, t.Name, csvNum(t.Chi2), strconv.Itoa(t.DF), csvNum(t.P), note})
 	}
 	for _, tb := range or.Tests {

@@ -120,7 +120,13 @@ func termTestRows(or *runner.OutcomeResult) [][]string {
 			if t.Name == fit.TestLR.String() {
 				restricted = tt.Without
 			}
-			rows = append(rows, append(row, csvNum(t.Chi2), strconv.Itoa(t.DF), df2, csvNum(t.P), t.Pooled, restricted, t.Warning))
+			var note []string
+			for _, n := range []string{t.Warning, tt.Bound} {
+				if n != "" {
+					note = append(note, n)
+				}
+			}
+			rows = append(rows, append(row, csvNum(t.Chi2), strconv.Itoa(t.DF), df2, csvNum(t.P), t.Pooled, restricted, strings.Join(note, "; ")))
 		}
 	}
 	return rows
