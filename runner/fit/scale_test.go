@@ -52,7 +52,8 @@ func adjacentScaleData(seed uint64, n int, phi1 float64) *Data {
 // stereotype model, say so; on data with phi_1 = 1 (g well away from zero)
 // they do not. The test's statistic is checked against the identity that
 // makes it one: (g - 0)' V_gg^-1 (g - 0) from the estimates and the
-// covariance's block, by hand.
+// covariance's block, by hand. A covariance that replaces the fit's
+// (UseCovariance) is judged again.
 func TestScaleNearZero(t *testing.T) {
 	for _, c := range []struct {
 		phi1 float64
@@ -83,6 +84,17 @@ func TestScaleNearZero(t *testing.T) {
 			if !c.near {
 				if res.NearZeroScale != nil {
 					t.Errorf("phi_1 %g, %s: g reported near zero: %+v", c.phi1, res.Name, res.NearZeroScale)
+				}
+				// A covariance that replaces the fit's (a sandwich) is
+				// judged again: 1000 times as wide, the same g is near
+				// zero (the statistic a thousandth).
+				wide := make([]float64, len(res.Cov))
+				for i, v := range res.Cov {
+					wide[i] = 1000 * v
+				}
+				res.UseCovariance(wide, SandwichInfo{Type: res.CovType})
+				if len(res.NearZeroScale) != 1 || !near(res.NearZeroScale[0].Test.Chi2, w/1000, 1e-8, 1e-10) {
+					t.Errorf("phi_1 %g, %s: with a covariance 1000 times as wide: %+v (statistic %.6g)", c.phi1, res.Name, res.NearZeroScale, w/1000)
 				}
 				continue
 			}
