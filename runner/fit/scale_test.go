@@ -48,9 +48,9 @@ func adjacentScaleData(seed uint64, n int, phi1 float64) *Data {
 // TestScaleNearZero: the scale g of a constraint group counts as near zero
 // when the Wald test of g = 0 does not reject at ScaleNearZeroLevel. On
 // invented data whose equation-1 effects nearly vanish (phi_1 = 0.02 of
-// phi_2) the adjacent model with both predictors constrained, and the
-// stereotype model, say so; on data with phi_1 = 1 (g well away from zero)
-// they do not. The test's statistic is checked against the identity that
+// phi_2) the adjacent logit and probit models with both predictors
+// constrained in one group (the stereotype model) say so; on data with
+// phi_1 = 1 (g well away from zero) they do not. The test's statistic is checked against the identity that
 // makes it one: (g - 0)' V_gg^-1 (g - 0) from the estimates and the
 // covariance's block, by hand. A covariance that replaces the fit's
 // (UseCovariance) is judged again.
