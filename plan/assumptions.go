@@ -62,7 +62,9 @@ type ClusterAssumption struct {
 	SD        float64
 	ICC       float64
 	ICCStated bool
-	Key       string
+	// PerCluster are the predictor columns drawn once per cluster.
+	PerCluster []string
+	Key        string
 }
 
 // InterceptSD is the standard deviation of the clusters' intercepts
@@ -249,6 +251,9 @@ func (d *decoder) decodeClusters(n *yaml.Node, path string) *ClusterAssumption {
 	}
 	if c.Number == 0 && c.RowsEach == 0 {
 		c.RowsEach = DefaultClusterRows
+	}
+	if v := m.get("per_cluster"); v != nil {
+		c.PerCluster, _ = d.names(v, m.at("per_cluster"))
 	}
 	if v := m.get("intercept_sd"); v != nil {
 		if x, ok := d.number(v, m.at("intercept_sd")); ok {
@@ -722,6 +727,17 @@ func (d *decoder) checkClusters(p *Plan) {
 		d.errAt(c.Key, "the plan has no cluster column (data.cluster), so there are no clusters to simulate: name the cluster column under data.cluster (and covariance: clustered for cluster-robust errors), or remove assumptions.clusters")
 		return
 	}
+	used := p.UsedColumns()
+	for i, col := range c.PerCluster {
+		key := itemPath(c.Key+".per_cluster", i)
+		u, ok := findUsed(used, col)
+		switch {
+		case !ok || (u.Role != RolePredictor && u.Role != RoleSubset):
+			d.errAt(key, "%s is not a column the predictors or the subset read (%s): per_cluster names predictor columns drawn once per cluster", quote(col), knownSources(p))
+		case slices.ContainsFunc(p.Assumptions.Correlations, func(r Correlation) bool { return r.A == col || r.B == col }):
+			d.errAt(key, "%s has stated correlations (assumptions.correlations), which are drawn row by row with the other columns: draw it row by row, or state no correlation of it", quote(col))
+		}
+	}
 	if l, err := fit.ParseLink(p.Assumptions.Link); err == nil && c.ICCStated {
 		if _, ok := fit.LinkVariance(l); !ok {
 			d.errAt(c.Key+".latent_icc", "the generating link is %s, whose distribution has no variance, so a latent intraclass correlation does not define the clusters' intercepts: give intercept_sd instead", quote(l.String()))
@@ -1021,6 +1037,9 @@ func (a *Assumptions) canonical() map[string]any {
 			cm["latent_icc"] = c.ICC
 		} else {
 			cm["intercept_sd"] = c.SD
+		}
+		if len(c.PerCluster) > 0 {
+			cm["per_cluster"] = c.PerCluster
 		}
 		out["clusters"] = cm
 	}

@@ -303,6 +303,9 @@ func clusterLimit(pr *simulate.PowerResult) string {
 	if pr.Clusters == nil {
 		return "clustering"
 	}
+	if len(pr.Clusters.PerCluster) > 0 {
+		return "other numbers, sizes or effects of clusters, or other predictors constant within clusters"
+	}
 	return "other numbers, sizes or effects of clusters, or predictors constant within clusters (drawn row by row here)"
 }
 

@@ -89,6 +89,17 @@ func simulatedClustersText(c *runner.SimulatedClusters) string {
 		how += fmt.Sprintf(": here %d clusters of %s", c.Clusters, rows)
 	}
 	t := fmt.Sprintf("The cluster column %s was simulated as %s.", name, how)
+	if len(c.PerCluster) > 0 {
+		cols := make([]string, len(c.PerCluster))
+		for i, col := range c.PerCluster {
+			cols[i] = mdCode(col)
+		}
+		what := "The column " + cols[0] + " was"
+		if len(cols) > 1 {
+			what = "The columns " + strings.Join(cols[:len(cols)-1], ", ") + " and " + cols[len(cols)-1] + " were"
+		}
+		t += " " + what + " drawn once per cluster (`assumptions.clusters.per_cluster`), the same in every row of a cluster; the other predictors row by row."
+	}
 	if c.InterceptSD == 0 {
 		t += " The clusters have no effect (an intercept SD of 0"
 		if c.Stated {
@@ -112,7 +123,16 @@ func simulatedClustersText(c *runner.SimulatedClusters) string {
 	if c.DrawnSD != nil {
 		t += fmt.Sprintf(" The %d intercepts drawn here have a standard deviation of %s.", c.Clusters, numfmt.Fixed(*c.DrawnSD, 4))
 	}
-	return t + " The stated effects hold within a cluster; the plan's models have no cluster intercept, so they estimate population-averaged effects, smaller in size than the stated ones, and only cluster-robust errors count the rows' correlation within a cluster. The cutpoints were solved over rows with their intercepts drawn, so the stated category proportions are those of the whole population. Every predictor is drawn row by row, independently within a cluster: a predictor constant within clusters (a treatment assigned by cluster) has a far larger design effect than these data show."
+	return t + " The stated effects hold within a cluster; the plan's models have no cluster intercept, so they estimate population-averaged effects, smaller in size than the stated ones, and only cluster-robust errors count the rows' correlation within a cluster. The cutpoints were solved over rows with their intercepts drawn, so the stated category proportions are those of the whole population." + perClusterLimit(c)
+}
+
+// perClusterLimit says what the predictors drawn row by row leave out,
+// or that the columns drawn once per cluster bring their design effect.
+func perClusterLimit(c *runner.SimulatedClusters) string {
+	if len(c.PerCluster) > 0 {
+		return " A column drawn once per cluster varies only between clusters, so the numbers count its design effect: its effect is estimated from the clusters' outcomes, which share their intercepts."
+	}
+	return " Every predictor is drawn row by row, independently within a cluster: a predictor constant within clusters (a treatment assigned by cluster) has a far larger design effect than these data show (name such columns in `assumptions.clusters.per_cluster`)."
 }
 
 // simulatedWeightsText says how the plan's weights column was simulated

@@ -60,7 +60,8 @@ type SimulatedTruncation struct {
 // effect). Effect names what the plan stated of the effect: intercept_sd,
 // latent_icc, or none. LatentICC is InterceptSD^2 / (InterceptSD^2 +
 // LinkVariance), the variance of the generating link's distribution (nil
-// for a link without one). In a rehearsal: the clusters made of its rows,
+// for a link without one). PerCluster are the predictor columns drawn
+// once per cluster. In a rehearsal: the clusters made of its rows,
 // the smallest and largest, and the standard deviation of the intercepts
 // drawn.
 type SimulatedClusters struct {
@@ -76,6 +77,7 @@ type SimulatedClusters struct {
 	RowsMin      int      `json:"rows_min,omitempty"`
 	RowsMax      int      `json:"rows_max,omitempty"`
 	DrawnSD      *float64 `json:"drawn_intercept_sd,omitempty"`
+	PerCluster   []string `json:"per_cluster,omitempty"`
 }
 
 // SimulatedWeights is how a plan's weights column was simulated: drawn

@@ -70,6 +70,9 @@ func (s *Sim) ClustersRecord(n int) *runner.SimulatedClusters {
 	if s.clusterNumber == 0 {
 		rec.RowsEach = s.clusterRows
 	}
+	for _, k := range s.perCluster {
+		rec.PerCluster = append(rec.PerCluster, s.Predictors[k].Column)
+	}
 	switch {
 	case c != nil && c.ICCStated:
 		rec.Effect = "latent_icc"

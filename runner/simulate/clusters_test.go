@@ -251,3 +251,55 @@ func mustLink(t *testing.T, s string) fit.Link {
 	}
 	return l
 }
+
+// A predictor drawn once per cluster (assumptions.clusters.per_cluster)
+// is the same in every row of a cluster, its clusters split as its
+// proportions say; with a cluster effect the power of its slope falls far
+// below that of the same predictor drawn row by row: its effect is then
+// estimated from 80 clusters' outcomes, which share their intercepts (the
+// design effect of a cluster-randomized comparison), not from 800 rows.
+// Seeded; more than three Monte Carlo standard errors of the difference.
+func TestPerClusterPredictorDesignEffect(t *testing.T) {
+	per := clusterPlan(t, "logit", "  clusters: {latent_icc: 0.3, per_cluster: [x]}\n", 0.5)
+	sim := mustSim(t, per)
+	if rec := sim.ClustersRecord(800); len(rec.PerCluster) != 1 || rec.PerCluster[0] != "x" {
+		t.Errorf("record %+v", rec)
+	}
+	lines := strings.Split(strings.TrimSpace(string(simulated(t, per, 20000, 3))), "\n")[1:]
+	xOf := map[string]string{}
+	ones := 0
+	for i, l := range lines {
+		c := strings.Split(l, ",")
+		if x, seen := xOf[c[2]]; seen && x != c[1] {
+			t.Fatalf("row %d: x = %s in cluster %s, which has x = %s", i+1, c[1], c[2], x)
+		} else if !seen {
+			xOf[c[2]] = c[1]
+			if c[1] == "1" {
+				ones++
+			}
+		}
+	}
+	if G := len(xOf); G != 2000 || math.Abs(float64(ones)/float64(G)-0.5) > 4*math.Sqrt(0.25/float64(G)) {
+		t.Errorf("%d clusters, %d with x = 1", G, ones)
+	}
+	if testing.Short() {
+		t.Skip("400 replicates")
+	}
+	const R = 200
+	study := func(p *plan.Plan) Rate {
+		res, err := Power(p, PowerOptions{Sizes: []int{800}, Replicates: R})
+		if err != nil {
+			t.Fatal(err)
+		}
+		s := res.Outcomes[0].Sizes[0]
+		if s.Failed.Count > 0 || s.Clusters.Simulated != 80 || s.Clusters.FewWarned.Count > 0 {
+			t.Fatalf("failed %d (%s), clusters %+v", s.Failed.Count, s.FirstFailure, s.Clusters)
+		}
+		return s.Hypotheses[0].Power
+	}
+	a, b := study(clusterPlan(t, "logit", "  clusters: {latent_icc: 0.3}\n", 0.5)), study(per)
+	t.Logf("power at n = 800 (80 clusters): %.3f with x drawn row by row, %.3f with x drawn once per cluster", a.Rate, b.Rate)
+	if a.Rate-b.Rate < 3*math.Hypot(a.SE, b.SE) {
+		t.Errorf("power %.3f (%.3f) row by row, %.3f (%.3f) per cluster", a.Rate, a.SE, b.Rate, b.SE)
+	}
+}

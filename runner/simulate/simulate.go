@@ -100,7 +100,9 @@ type Sim struct {
 	clusterNumber, clusterRows int
 	clusterSD                  float64
 	calibU                     []float64
-	seed                       uint64
+	// perCluster are the predictors drawn once per cluster (indexes).
+	perCluster []int
+	seed       uint64
 }
 
 // New prepares the simulation of a plan with assumptions.
@@ -143,6 +145,15 @@ func New(p *plan.Plan) (*Sim, error) {
 			s.clusterNumber, s.clusterRows = c.Number, c.RowsEach
 		}
 		s.clusterSD = a.Clusters.InterceptSD(link)
+	}
+	if c := a.Clusters; c != nil && s.Cluster != "" {
+		for _, col := range c.PerCluster {
+			k := slices.IndexFunc(s.Predictors, func(pr Predictor) bool { return pr.Column == col })
+			if k < 0 {
+				return nil, fmt.Errorf("%s: %s.per_cluster: column %q is not simulated", p.Path, c.Key, col)
+			}
+			s.perCluster = append(s.perCluster, k)
+		}
 	}
 	if err := s.correlate(a.Correlations); err != nil {
 		return nil, err
@@ -1084,6 +1095,11 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) (Written, error
 		}
 		u = s.intercepts(n, replicate, G)
 	}
+	// The columns drawn once per cluster come from a stream of their own,
+	// the row's own draws of them (from rng, kept so that the other
+	// columns are those drawn without per_cluster) replaced.
+	crng := rand.New(rand.NewPCG(s.seed, uint64(n)<<32^replicate^0xc1a55e7))
+	clusterLevel, clusterX := make([]int, len(s.perCluster)), make([]float64, len(s.perCluster))
 	counts := make([]int, len(s.Missing))
 	met := 0
 	ys := make([]int, len(s.Outcomes))
@@ -1107,6 +1123,16 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) (Written, error
 	var missed []int // the columns of s.Missing the current row misses
 	for i := 0; i < n; i++ {
 		s.drawRow(rng, &r)
+		if len(s.perCluster) > 0 {
+			if i == 0 || s.clusterOf(i, n) != s.clusterOf(i-1, n) {
+				for j, k := range s.perCluster {
+					clusterLevel[j], clusterX[j] = s.Predictors[k].draw(crng, nil)
+				}
+			}
+			for j, k := range s.perCluster {
+				r.level[k], r.x[k] = clusterLevel[j], clusterX[j]
+			}
+		}
 		cells = cells[:0]
 		kept := s.inSubset(&r)
 		for oi := range s.Outcomes {
