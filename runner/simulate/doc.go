@@ -25,6 +25,8 @@
 // effect) from a stream of its own, and every outcome of its rows adds it
 // to its linear predictors (Sim.ClustersRecord says how; the reports say
 // it, and a power study counts the runs' few-clusters warnings per size).
+// The predictor columns named in per_cluster are drawn once per cluster,
+// from a stream of their own, the row's own draws replaced.
 //
 // Outcomes: the raw columns become design columns through runner/design,
 // the same path as real data, its data-determined constants (means, SDs,
