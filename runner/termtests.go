@@ -104,7 +104,7 @@ func boundNote(ne *fit.NoEffect) string {
 	for _, g := range ne.Groups {
 		gs = append(gs, strings.Join(g, ", "))
 	}
-	return fmt.Sprintf("%s make up a whole constraint group, whose common factor phi has no meaning without them, so the tests have no chi-square reference of their own: they are referred to %d degrees of freedom (chi-square; on imputed data the F statistic's numerator), those of the same columns made nonparallel (a model the constrained one is nested in, whose likelihood-ratio statistic is never smaller), so their p-values are upper bounds (conservative)",
+	return fmt.Sprintf("%s make up a whole constraint group, whose common factor phi has no meaning without them, so the tests have no chi-square reference of their own: they are referred to %d degrees of freedom (chi-square; on imputed data the F statistic's numerator), those of the same columns made nonparallel (a model the constrained one is nested in, whose likelihood-ratio statistic is never smaller), so their p-values are upper bounds (conservative); the Wald statistic, whose covariance carries phi's uncertainty, can be much the smaller of the two here: read the likelihood ratio",
 		strings.Join(gs, "; "), ne.DF)
 }
 
