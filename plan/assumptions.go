@@ -1101,14 +1101,36 @@ func (d *decoder) checkSimulatedWeights(p *Plan) {
 		}
 		key, what = e.Key+".values", fmt.Sprintf("values, which include %g", low)
 		if !(low < 0) {
+			d.checkSimulatedCounts(p, e)
 			return
 		}
 	case e.Range != nil && e.Range[0] < 0:
 		key, what = e.Key+".range", fmt.Sprintf("range, which starts below 0 (%g)", e.Range[0])
 	default:
+		d.checkSimulatedCounts(p, e)
 		return
 	}
 	d.errAt(key, "the simulated weights (data.weights: %s) are drawn from the dictionary's %s, but a weight is zero or more: give %s values or a range of zero or more", w, what, e.Key)
+}
+
+// checkSimulatedCounts refuses simulated frequency weights (counts, which
+// the reader asks to be whole numbers, D33) drawn from dictionary values
+// that are not whole numbers or from a range that holds none (D36); the
+// simulation draws them over the whole numbers of the range.
+func (d *decoder) checkSimulatedCounts(p *Plan, e *Entry) {
+	if p.Data.Sampling() {
+		return
+	}
+	w := p.Data.Weights
+	for _, v := range e.Values {
+		if x, err := strconv.ParseFloat(v, 64); err == nil && x != math.Trunc(x) {
+			d.errAt(e.Key+".values", "the simulated frequency weights (data.weights: %s, data.weight_kind: frequency, the default) are counts, whole numbers, but the dictionary's values include %s: give whole numbers, or set data.weight_kind: sampling if they are sampling weights", w, v)
+			return
+		}
+	}
+	if r := e.Range; r != nil && math.Ceil(r[0]) > math.Floor(r[1]) {
+		d.errAt(e.Key+".range", "the simulated frequency weights (data.weights: %s, data.weight_kind: frequency, the default) are counts, whole numbers, and the dictionary's range [%g, %g] holds none: give a range holding whole numbers, or set data.weight_kind: sampling if they are sampling weights", w, r[0], r[1])
+	}
 }
 
 // MaxOutsideRange is the largest share of a stated normal distribution

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"path/filepath"
 	"slices"
+	"strconv"
 	"strings"
 
 	"ordplan/internal/words"
@@ -92,6 +93,9 @@ func writeMethods(d *doc, r *runner.Result) {
 		}
 		s = append(s, fmt.Sprintf("The outcome %s (%d ordered categories, from %s to %s) was analysed with ordinal regression models %s (ordplan %s).",
 			mdText(or.Outcome.Label), len(ds.Categories), mdText(ds.Categories[0]), mdText(ds.Categories[len(ds.Categories)-1]), fitted, r.Version))
+		if !sampling && p.Data.Weights != "" && ds.Weights != nil {
+			s = append(s, fmt.Sprintf("The rows carry frequency weights (%s, whole numbers): each row counts as that many identical observations, %s in the %d rows used.", mdCode(p.Data.Weights), strconv.FormatFloat(ds.NObs(), 'g', -1, 64), ds.N))
+		}
 		switch {
 		case or.Imputed != nil && or.Imputed.Source != "chained":
 			// The rows read include every imputed set; each set is complete.

@@ -110,6 +110,8 @@ func TestSimulatedWeightsWords(t *testing.T) {
 			[]string{"drawn for each row from the dictionary's values, in the shares 1 (0.3333), 2 (0.3333), 3 (0.3333), independently of the predictors and the outcomes", "about 2.00 times the rows"}},
 		{runner.SimulatedWeights{Column: "sw", Kind: "sampling", Drawn: true, Values: []string{"1", "2", "3"}, Proportions: third},
 			[]string{"a design effect of 1 + CV^2 of the weights, about 1.17)", "they do not count strata or clusters"}},
+		{runner.SimulatedWeights{Column: "fw", Kind: "frequency", Drawn: true, Range: []float64{1, 3}, Whole: true},
+			[]string{"uniformly over the whole numbers 1 to 3 of the dictionary's range (frequency weights are counts)", "about 2.00 times the rows"}},
 		{runner.SimulatedWeights{Column: "sw", Kind: "sampling", Drawn: true, Range: []float64{0.5, 3}},
 			[]string{"uniformly over the dictionary's range [0.5, 3]", "about 1.17)"}},
 	} {

@@ -154,6 +154,10 @@ func simulatedWeightsText(w *runner.SimulatedWeights) string {
 		a, b := w.Range[0], w.Range[1]
 		from = fmt.Sprintf("uniformly over the dictionary's range [%s, %s]", strconv.FormatFloat(a, 'g', -1, 64), strconv.FormatFloat(b, 'g', -1, 64))
 		mean, variance = (a+b)/2, (b-a)*(b-a)/12
+		if w.Whole {
+			from = fmt.Sprintf("uniformly over the whole numbers %s to %s of the dictionary's range (frequency weights are counts)", strconv.FormatFloat(a, 'g', -1, 64), strconv.FormatFloat(b, 'g', -1, 64))
+			variance = ((b-a+1)*(b-a+1) - 1) / 12
+		}
 	} else {
 		shares := make([]string, len(w.Values))
 		for i, v := range w.Values {

@@ -212,13 +212,12 @@ func completedCSV(sets []*data.Dataset, r Reading) ([]byte, error) {
 // becomes w rows of weight 1, so that each unit the row counts is imputed
 // on its own, as in the data the weights stand for. The fits of the
 // expanded rows are the weighted fits (a sum over w identical rows is w
-// times the row's term).
+// times the row's term). The reader has refused frequency weights that
+// are not whole numbers (data's wholeCounts); a row of weight 0, kept for
+// its missing values, stands for no unit and becomes no row.
 func expandCounts(ds *data.Dataset) (*data.Dataset, error) {
 	total := 0
-	for i, w := range ds.Weights {
-		if w != math.Trunc(w) || w < 1 {
-			return nil, fmt.Errorf("%s: frequency weight %s is not a whole number; imputation expands each row into as many rows as its weight (the identical units it counts), so the weights must be counts (for sampling weights, impute elsewhere and name the sets under data.imputed)", ds.Where(ds.Lines[i]), strconv.FormatFloat(w, 'g', -1, 64))
-		}
+	for _, w := range ds.Weights {
 		if total += int(w); total > maxExpanded {
 			return nil, fmt.Errorf("the frequency weights add up to more than %d rows, the most imputation expands them into (each row becomes as many rows as its weight); impute elsewhere and name the sets under data.imputed", maxExpanded)
 		}

@@ -46,6 +46,10 @@ type ImputedRun struct {
 	// names say where each set is read, for messages ("imp.csv (imp =
 	// 2)", or the set's file).
 	names []string
+	// membership explains rows that differ between the sets, or between
+	// the sets and the data file, by a subset condition on a column the
+	// sets impute (subsetMembership); nil when there is nothing to read.
+	membership func(orig *data.Dataset) error
 	// completed writes the completed sets for the outputs
 	// (data.imputation.write_sets; nil otherwise).
 	completed func() ([]byte, error)
@@ -73,7 +77,7 @@ func imputedSets(a *Analysis, r Reading) (*ImputedRun, []*data.Dataset, *design.
 	dopt.Refuse = false
 	run := &ImputedRun{}
 	var sets []*data.Dataset
-	var names []string
+	var names, paths []string
 	if im.Files != nil {
 		run.Source, run.Files = "files", im.Files
 		var first []string
@@ -92,7 +96,7 @@ func imputedSets(a *Analysis, r Reading) (*ImputedRun, []*data.Dataset, *design.
 				return nil, nil, nil, fmt.Errorf("%s (plan %s, data.imputed.files[%d], outcome %q)", err, src, k, r.Outcome)
 			}
 			sets = append(sets, ds)
-			names = append(names, im.Files[k])
+			names, paths = append(names, im.Files[k]), append(paths, path)
 			run.sources = append(run.sources, setSource{name: im.Files[k], bytes: fileBytes(path), options: dopt})
 		}
 	} else {
@@ -109,11 +113,14 @@ func imputedSets(a *Analysis, r Reading) (*ImputedRun, []*data.Dataset, *design.
 				return nil, nil, nil, fmt.Errorf("%s (plan %s, data.imputed, imputed set %d, outcome %q)", err, src, k, r.Outcome)
 			}
 			sets = append(sets, ds)
-			names = append(names, fmt.Sprintf("%s (%s = %d)", im.File, im.Column, k))
+			names, paths = append(names, fmt.Sprintf("%s (%s = %d)", im.File, im.Column, k)), append(paths, im.Path)
 			run.sources = append(run.sources, setSource{name: im.File, bytes: fileBytes(im.Path), options: o})
 		}
 	}
 	run.M = len(sets)
+	run.membership = func(orig *data.Dataset) error {
+		return subsetMembership(a, r, run.sources, paths, sets, orig)
+	}
 	for k, ds := range sets {
 		var miss []string
 		for _, dc := range ds.Dropped {
@@ -125,6 +132,9 @@ func imputedSets(a *Analysis, r Reading) (*ImputedRun, []*data.Dataset, *design.
 			return nil, nil, nil, fmt.Errorf("%s: data.imputed: imputed set %d, %s, has rows with missing values or zero weight (%s); every imputed set must be complete in the columns the plan uses", src, k+1, names[k], strings.Join(miss, ", "))
 		}
 		if ds.N != sets[0].N {
+			if err := run.membership(nil); err != nil {
+				return nil, nil, nil, err
+			}
 			return nil, nil, nil, fmt.Errorf("%s: data.imputed: imputed set %d, %s, has %d rows but set 1, %s, has %d; imputed sets must hold the same rows", src, k+1, names[k], ds.N, names[0], sets[0].N)
 		}
 		if !slices.Equal(ds.Categories, sets[0].Categories) {
@@ -845,6 +855,11 @@ func (run *ImputedRun) matchObserved(src string, orig *data.Dataset, file string
 	}
 	redo := "an imputed set must keep every observed value of the data file: make the imputed sets again from " + file + ", or point data.file at the data they were made from"
 	for k, ds := range run.Data {
+		if ds.N != orig.N && run.membership != nil {
+			if err := run.membership(orig); err != nil {
+				return err
+			}
+		}
 		if ds.N != orig.N {
 			return fmt.Errorf("%s: data.imputed: imputed set %d, %s, has %d rows but the data file %s has %d (each after the plan's subset); imputed sets hold the rows of the data they were made from: make them again from %s, or point data.file at the data they were made from", src, k+1, run.names[k], ds.N, file, orig.N, file)
 		}
@@ -867,4 +882,133 @@ func (run *ImputedRun) matchObserved(src string, orig *data.Dataset, file string
 		}
 	}
 	return nil
+}
+
+// subsetMembership explains imputed sets (data.imputed) that keep other
+// rows under the plan's subset than each other, or than the data file,
+// because a subset condition reads a column the sets impute: a row whose
+// value the data file misses is inside the subset in a set that imputes
+// it above the limit and outside in another. Pooling needs the same rows
+// in every set, and the data file cannot say whether such a row belongs
+// (D30), so the subset must be applied to observed values before
+// imputing, as data.missing: impute does (D32). It names the condition,
+// its column and the first row that differs, with its line in the sets
+// and in the data file. orig is the data file read under the subset
+// (nil: compare the sets only); nil is returned when the rows differ
+// otherwise, for the caller's own message.
+func subsetMembership(a *Analysis, r Reading, sources []setSource, paths []string, sets []*data.Dataset, orig *data.Dataset) error {
+	keep := r.Options.Keep
+	if len(keep) == 0 {
+		return nil
+	}
+	// Every row of each set, the subset not applied.
+	all := make([][]int, len(sets))
+	for k := range sets {
+		o := sources[k].options
+		o.Keep = o.Keep[len(keep):] // the stacked file's imputation number
+		ds, err := data.Load(paths[k], o)
+		if err != nil || k > 0 && ds.N != len(all[0]) {
+			return nil
+		}
+		all[k] = ds.Lines
+	}
+	inside := func(k, j int) bool {
+		_, ok := slices.BinarySearch(sets[k].Lines, all[k][j])
+		return ok
+	}
+	// The data file's rows, the subset not applied (its lines, and
+	// whether each is kept under the subset).
+	var origLines []int
+	{
+		o := r.Options
+		o.Refuse, o.KeepIncomplete, o.Keep = false, true, nil
+		d, err := data.LoadFiles(a.Paths(), o)
+		if err == nil && d.N == len(all[0]) {
+			origLines = d.Lines
+		}
+	}
+	first, other, differ := -1, 0, 0
+	for j := range all[0] {
+		k := 1
+		for k < len(sets) && inside(k, j) == inside(0, j) {
+			k++
+		}
+		origDiffers := false
+		if k == len(sets) && orig != nil && origLines != nil {
+			_, kept := slices.BinarySearch(orig.Lines, origLines[j])
+			origDiffers = kept != inside(0, j)
+		}
+		if k == len(sets) && !origDiffers {
+			continue
+		}
+		if differ++; first < 0 {
+			first, other = j, k
+		}
+	}
+	if first < 0 {
+		return nil
+	}
+	j := first
+	cellAt := func(path string, d data.Dialect, column string, line int) string {
+		var cell string
+		found := errors.New("found")
+		_ = data.ColumnCells(path, d, column, func(l int, c string) error {
+			if l == line {
+				cell = c
+				return found
+			}
+			return nil
+		})
+		return cell
+	}
+	dialect := r.Options.Dialect
+	// The condition whose column the sets (or the set and the data file)
+	// hold differently at that row.
+	cond := keep[0]
+	var setCell, otherCell, origCell string
+	for _, c := range keep {
+		setCell = cellAt(paths[0], dialect, c.Column, all[0][j])
+		if other < len(sets) {
+			otherCell = cellAt(paths[other], dialect, c.Column, all[other][j])
+		}
+		if origLines != nil {
+			origCell = cellAt(a.Paths()[0], dialect, c.Column, origLines[j])
+		}
+		if other < len(sets) && setCell != otherCell || other == len(sets) && setCell != origCell {
+			cond = c
+			break
+		}
+	}
+	side := func(in bool) string {
+		if in {
+			return "inside the subset"
+		}
+		return "outside the subset"
+	}
+	where := func(k int) string {
+		return fmt.Sprintf("%s line %d", sources[k].name, all[k][j])
+	}
+	var what string
+	if other < len(sets) {
+		what = fmt.Sprintf("the row at %s in imputed set 1 has %s %s there, %s, and at %s in imputed set %d it has %s, %s",
+			where(0), cond.Column, strconv.Quote(setCell), side(inside(0, j)), where(other), other+1, strconv.Quote(otherCell), side(inside(other, j)))
+	} else {
+		what = fmt.Sprintf("the row at %s in every imputed set has %s %s there, %s", where(0), cond.Column, strconv.Quote(setCell), side(inside(0, j)))
+	}
+	if origLines != nil {
+		what += fmt.Sprintf("; the data file %s, line %d, has %s there", a.DataFile, origLines[j], strconv.Quote(origCell))
+		if other == len(sets) {
+			what += ": a missing value leaves the row's membership of the subset unknown, and the data file's rows under the subset leave it out"
+		}
+	}
+	more := ""
+	if differ > 1 {
+		more = fmt.Sprintf(" (%d rows in all differ so)", differ)
+	}
+	key := cond.Key
+	if key == "" {
+		key = "subset"
+	}
+	return fmt.Errorf("%s: data.imputed: the subset condition %s (%s) reads column %q, which the imputed sets fill in: %s%s. A subset on an imputed column would analyse different people in different sets (and others than the data file's rows under the subset), which pooling cannot combine. Apply the subset to observed values before imputing: leave out the rows outside it, and those whose %s is missing, and make the imputed sets again from the rows that remain (as data.missing: impute does, dropping rows whose membership of the subset is unknown), or subset on a column observed in every row",
+		a.Source, cond.String(), key, cond.Column, what, more, cond.Column)
 }

@@ -91,6 +91,9 @@ type SimulatedWeights struct {
 	Values      []string  `json:"values,omitempty"`
 	Proportions []float64 `json:"proportions,omitempty"`
 	Range       []float64 `json:"range,omitempty"`
+	// Whole says frequency weights were drawn over the whole numbers of
+	// Range (the whole numbers the dictionary's range holds): counts.
+	Whole bool `json:"whole,omitempty"`
 }
 
 // SimulatedMissing is the missingness simulated in one column: its stated

@@ -479,6 +479,31 @@ func subsetAges(t *testing.T, dir, id string) {
 	os.WriteFile(filepath.Join(dir, "subna.csv"), []byte(b.String()), 0o644)
 }
 
+// imputedAges writes subna.csv (subsetAges) and two stacked files of
+// two imputed sets of it made elsewhere: subimp.csv fills every missing
+// age with 16 in set 1 and 40 in set 2, subimp2.csv with 40 in both.
+func imputedAges(t *testing.T, dir, id string) {
+	subsetAges(t, dir, id)
+	b, err := os.ReadFile(filepath.Join(dir, "subna.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+	for name, fill := range map[string][2]string{"subimp.csv": {"16", "40"}, "subimp2.csv": {"40", "40"}} {
+		out := []string{lines[0] + ",imp"}
+		for set := 1; set <= 2; set++ {
+			for _, l := range lines[1:] {
+				f := strings.Split(l, ",")
+				if f[3] == "NA" || strings.HasPrefix(f[3], "-9") {
+					f[3] = fill[set-1]
+				}
+				out = append(out, strings.Join(f, ",")+","+strconv.Itoa(set))
+			}
+		}
+		os.WriteFile(filepath.Join(dir, name), []byte(strings.Join(out, "\n")+"\n"), 0o644)
+	}
+}
+
 func allMissing(t *testing.T, dir, id string) {
 	t.Helper()
 	b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
@@ -806,7 +831,13 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`data.weight_kind: imputation by chained equations (data.missing: impute) takes frequency weights (counts of identical units, each imputed on its own), not sampling weights: these are no counts, and imputing under a sampling design needs the design in the imputation models; impute elsewhere and name the sets under data.imputed, or remove data.weights`}},
 		{id: "I17", name: "impute with a frequency weight that is not a whole number", args: []string{"run"}, setup: fractionalWeight,
 			plan: edit("  file: d.csv\n", "  file: fracw.csv\n  missing: impute\n  weights: w\n"), code: 1,
-			want: []string{`data.weights: fracw.csv:3: frequency weight 2.5 is not a whole number; imputation expands each row into as many rows as its weight (the identical units it counts), so the weights must be counts (for sampling weights, impute elsewhere and name the sets under data.imputed) (data.missing: impute, outcome "y")`}},
+			want: []string{`fracw.csv:3: column "w": frequency weight 2.5 is not a whole number: a frequency weight (data.weight_kind: frequency, the default) counts identical rows`, `(plan I17.yaml, outcome "y", plan key data.weight_kind)`}},
+		{id: "I23", name: "a subset on a column the imputed sets made elsewhere fill in differently", args: []string{"check"}, setup: imputedAges,
+			plan: edit("  file: d.csv\n", "  file: subna.csv\n  missing_values: [\"NA\", \"-9\"]\n  imputed: {file: subimp.csv, column: imp}\n") + "subset:\n  - {column: age, at_least: 18}\n", code: 1,
+			want: []string{`I23.yaml: data.imputed: the subset condition age >= 18 (subset[0]) reads column "age", which the imputed sets fill in: the row at subimp.csv line 8 in imputed set 1 has age "16" there, outside the subset, and at subimp.csv line 68 in imputed set 2 it has "40", inside the subset; the data file subna.csv, line 8, has "NA" there (17 rows in all differ so). A subset on an imputed column would analyse different people in different sets`, `Apply the subset to observed values before imputing: leave out the rows outside it, and those whose age is missing, and make the imputed sets again from the rows that remain (as data.missing: impute does, dropping rows whose membership of the subset is unknown), or subset on a column observed in every row`}},
+		{id: "I23", name: "a subset on a column every imputed set fills in alike, which the data file misses", args: []string{"run"}, setup: imputedAges,
+			plan: edit("  file: d.csv\n", "  file: subna.csv\n  missing_values: [\"NA\", \"-9\"]\n  imputed: {file: subimp2.csv, column: imp}\n") + "subset:\n  - {column: age, at_least: 18}\n", code: 1,
+			want: []string{`I23.yaml: data.imputed: the subset condition age >= 18 (subset[0]) reads column "age", which the imputed sets fill in: the row at subimp2.csv line 8 in every imputed set has age "40" there, inside the subset; the data file subna.csv, line 8, has "NA" there: a missing value leaves the row's membership of the subset unknown, and the data file's rows under the subset leave it out (17 rows in all differ so).`}},
 		{id: "I18", name: "normal draws for a column whose logarithm a term takes", args: []string{"check", "--no-data"},
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  missing: impute\n  imputation: {column_models: {b: normal_draw}}\n", "predictors: [a, b]", "predictors: [a, {name: lb, column: b, log: {}}]"), code: 1,
 			want: []string{`I18.yaml:5:35: data.imputation.column_models.b: normal_draw draws b from a normal distribution, which can give values at or below 0, where log(b) of the term lb (predictors[1]) is undefined: a run would stop on the first such draw; impute b by mean_matching (the default), which imputes values observed in the data` + "\n"}},
@@ -926,6 +957,14 @@ func catalogue(dir string) (items []badInput) {
 		{id: "D31", name: "a missing value in a column the subset reads, where missing values are refused", args: []string{"run"}, setup: subsetAges,
 			plan: edit("  file: d.csv\n", "  file: subna.csv\n  missing: refuse\n  missing_values: [\"NA\", \"-9\"]\n") + "subset:\n  - {column: age, at_least: 18}\n", code: 1,
 			want: []string{`subna.csv:8: column "age": missing value ("NA") where missing values are refused; the subset's condition on this column cannot be judged`}},
+		{id: "D33", name: "frequency weights that are not whole numbers", args: []string{"check"}, setup: fractionalWeight,
+			plan: edit("  file: d.csv\n", "  file: fracw.csv\n  weights: w\n"), code: 1,
+			want: []string{`fracw.csv:3: column "w": frequency weight 2.5 is not a whole number: a frequency weight (data.weight_kind: frequency, the default) counts identical rows, so these weights would make 120.5 observations of the 119 rows and give every standard error as if there were that many independent rows; if they are sampling or inverse-probability weights, set data.weight_kind: sampling (ordplan fit: --weight-kind sampling); if they are counts, correct them (plan D33.yaml, outcome "y", plan key data.weight_kind)`}},
+		{id: "D33", name: "frequency weights that are not whole numbers, at run", args: []string{"run"}, setup: fractionalWeight,
+			plan: edit("  file: d.csv\n", "  file: fracw.csv\n  weights: w\n"), code: 1,
+			want: []string{`ordplan: fracw.csv:3: column "w": frequency weight 2.5 is not a whole number`}},
+		{id: "D33", name: "frequency weights that are not whole numbers, in ordplan fit", args: fitArgs(d("fracw.csv"), "--predictors", "a,b", "--weights", "w"), setup: fractionalWeight, code: 1,
+			want: []string{`fracw.csv:3: column "w": frequency weight 2.5 is not a whole number`, `set data.weight_kind: sampling (ordplan fit: --weight-kind sampling)`}},
 		{id: "D32", name: "missing values in a column the subset reads, with imputation", args: []string{"run"}, setup: subsetAges,
 			plan: edit("  file: d.csv\n", "  file: subna.csv\n  missing: impute\n  missing_values: [\"NA\", \"-9\"]\n", "[a, b]", "[a, b, age]") + "subset:\n  - {column: age, at_least: 18}\n", code: 0,
 			check: func(t *testing.T, dir, out, errs string) {

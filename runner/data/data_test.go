@@ -151,14 +151,14 @@ func TestRead(t *testing.T) {
 		},
 		{
 			name: "labels, weights, offset, cluster, BOM, CRLF, unobserved category",
-			in:   "\uFEFFg,y,w,o,x\r\nd1,low,2,0.5,1\r\nd2,high,1.5,-1,2\r\nd1,low,1,0,3\r\n",
+			in:   "\uFEFFg,y,w,o,x\r\nd1,low,2,0.5,1\r\nd2,high,4,-1,2\r\nd1,low,1,0,3\r\n",
 			opt: Options{Outcome: "y", Categories: []string{"low", "mid", "high"}, Predictors: []string{"x"},
 				Weights: "w", Offset: "o", Cluster: "g"},
 			want: Dataset{
 				Outcome: "y", Categories: []string{"low", "mid", "high"},
 				Y: []int{0, 2, 0}, Predictors: []string{"x"}, X: []float64{1, 2, 3}, N: 3, K: 1,
-				Weights: []float64{2, 1.5, 1}, Offset: []float64{0.5, -1, 0}, Cluster: []string{"d1", "d2", "d1"},
-				RowsRead: 3, Counts: []float64{3, 0, 1.5}, Lines: []int{2, 3, 4},
+				Weights: []float64{2, 4, 1}, Offset: []float64{0.5, -1, 0}, Cluster: []string{"d1", "d2", "d1"},
+				RowsRead: 3, Counts: []float64{3, 0, 4}, Lines: []int{2, 3, 4},
 				Unobserved: []string{"mid"},
 			},
 		},
@@ -284,13 +284,13 @@ func toBook(t *testing.T, text string) []byte {
 }
 
 func TestDatasetMethods(t *testing.T) {
-	in := "y,a,b,w\n1,1,2,0.5\n2,3,4,2\n2,,4,2\n"
+	in := "y,a,b,w\n1,1,2,5\n2,3,4,2\n2,,4,2\n"
 	d, err := Read(strings.NewReader(in), "m.csv", Options{Outcome: "y", Predictors: []string{"a", "b"}, Weights: "w"})
 	if err != nil {
 		t.Fatal(err)
 	}
-	if got := d.NObs(); got != 2.5 {
-		t.Errorf("NObs = %v, want 2.5", got)
+	if got := d.NObs(); got != 7 {
+		t.Errorf("NObs = %v, want 7", got)
 	}
 	if got := d.Row(1); !reflect.DeepEqual(got, []float64{3, 4}) || cap(got) != 2 {
 		t.Errorf("Row(1) = %v (cap %d)", got, cap(got))

@@ -101,6 +101,9 @@ func (r *reader) finish(t *rowTally, d *Dataset) (*Dataset, error) {
 	if err := r.countDrops(t, d); err != nil {
 		return nil, err
 	}
+	if err := r.wholeCounts(d); err != nil {
+		return nil, err
+	}
 	if opt.Sampling {
 		total := weightTotal(d.Weights)
 		if opt.Part {
@@ -132,6 +135,40 @@ func (r *reader) finish(t *rowTally, d *Dataset) (*Dataset, error) {
 	}
 	d.Missing.byCategory(r.cols, d, t.catMiss, t.catIncomplete)
 	return d, nil
+}
+
+// wholeCounts refuses frequency weights that are not whole numbers. A
+// frequency weight counts identical rows: the observations are the
+// weights' sum and every standard error is that of so many independent
+// rows, which weights such as 0.5 or 2.7 (sampling or inverse-probability
+// weights read as frequency weights, the default kind) are not. The one
+// place for this decision: every fit, the imputation that expands the
+// rows by their weights, and every format read through here.
+func (r *reader) wholeCounts(d *Dataset) error {
+	if r.opt.Sampling || d.Weights == nil {
+		return nil
+	}
+	first, count, sum := -1, 0, 0.0
+	for i, w := range d.Weights {
+		sum += w
+		if w != math.Trunc(w) {
+			if first < 0 {
+				first = i
+			}
+			count++
+		}
+	}
+	if first < 0 {
+		return nil
+	}
+	others := ""
+	if count > 1 {
+		others = fmt.Sprintf(" (and %d more rows used)", count-1)
+	}
+	e := r.fail(d.Lines[first], r.opt.Weights, "frequency weight %s is not a whole number%s: a frequency weight (data.weight_kind: frequency, the default) counts identical rows, so these weights would make %s observations of the %d rows and give every standard error as if there were that many independent rows; if they are sampling or inverse-probability weights, set data.weight_kind: sampling (ordplan fit: --weight-kind sampling); if they are counts, correct them",
+		strconv.FormatFloat(d.Weights[first], 'g', -1, 64), others, strconv.FormatFloat(sum, 'g', 6, 64), d.N)
+	e.Key = "data.weight_kind"
+	return e
 }
 
 // rowTally holds what reading the rows needs and counts: lookups built

@@ -51,6 +51,7 @@ type Predictor struct {
 	Proportions []float64
 	Mean, SD    float64
 	Range       []float64 // nil = unbounded
+	whole       bool      // drawn over the whole numbers of Range (frequency weights)
 }
 
 // Outcome is one outcome's generating model.
@@ -211,7 +212,14 @@ func (s *Sim) prepareWeights() error {
 	if err != nil {
 		return err
 	}
-	// A range or values below 0 are refused by the plan's check (A24).
+	// A range or values below 0 are refused by the plan's check (A24),
+	// and so are frequency weights (counts) whose values are not whole
+	// numbers or whose range holds none (D36).
+	if p.Data.WeightKind != "sampling" && pr.Kind == "uniform" {
+		// Frequency weights are counts, as the reader asks (D33): drawn
+		// over the whole numbers of the range.
+		pr.Range, pr.whole = []float64{math.Ceil(pr.Range[0]), math.Floor(pr.Range[1])}, true
+	}
 	s.weight = &pr
 	return nil
 }
@@ -226,7 +234,7 @@ func (s *Sim) WeightsRecord() *runner.SimulatedWeights {
 	if pr := s.weight; pr != nil {
 		rec.Drawn = true
 		if pr.Kind == "uniform" {
-			rec.Range = slices.Clone(pr.Range)
+			rec.Range, rec.Whole = slices.Clone(pr.Range), pr.whole
 		} else {
 			rec.Values, rec.Proportions = slices.Clone(pr.Values), slices.Clone(pr.Proportions)
 		}
@@ -1237,6 +1245,11 @@ func (s *Sim) drawWeight(rng *rand.Rand) string {
 	l, x := pr.draw(rng, nil)
 	if l >= 0 {
 		return csvCell(pr.Values[l])
+	}
+	if pr.whole {
+		// Uniform over lo, lo+1, ..., hi: the point drawn over [lo, hi+1).
+		x = min(math.Floor(pr.Range[0]+(x-pr.Range[0])*(pr.Range[1]-pr.Range[0]+1)/max(pr.Range[1]-pr.Range[0], 1)), pr.Range[1])
+		return strconv.FormatFloat(x, 'f', 0, 64)
 	}
 	return strconv.FormatFloat(x, 'g', 7, 64)
 }

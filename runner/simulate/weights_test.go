@@ -3,9 +3,12 @@ package simulate
 import (
 	"bytes"
 	"math"
+	"path/filepath"
 	"slices"
 	"strings"
 	"testing"
+
+	"ordplan/plan"
 )
 
 // weightsPlan: waldPlan with a frequency weights column w whose
@@ -85,7 +88,44 @@ func TestWeightsDrawnFromTheDictionary(t *testing.T) {
 	if rec := sim("{values: [1, 2, 3]}").WeightsRecord(); !rec.Drawn || !slices.Equal(rec.Values, []string{"1", "2", "3"}) || len(rec.Proportions) != 3 {
 		t.Errorf("record %+v", rec)
 	}
-	rng, _ := splitRows(t, sim("{range: [0.5, 3]}"), n, "w")
+	// Frequency weights are counts: over a range, its whole numbers
+	// 1, 2, 3 equally often.
+	whole, _ := splitRows(t, sim("{range: [0.5, 3]}"), n, "w")
+	count = map[string]int{}
+	for _, r := range whole {
+		count[r[w]]++
+	}
+	for _, v := range []string{"1", "2", "3"} {
+		if math.Abs(float64(count[v])-n/3.0) > 4*sd {
+			t.Errorf("whole weight %s in %d rows of %d", v, count[v], n)
+		}
+	}
+	if len(count) != 3 {
+		t.Errorf("whole weights %v", count)
+	}
+	if rec := sim("{range: [0.5, 3]}").WeightsRecord(); !rec.Whole || !slices.Equal(rec.Range, []float64{1, 3}) {
+		t.Errorf("record %+v", rec)
+	}
+	for entry, want := range map[string]string{
+		"{range: [0.2, 0.8]}":   "the dictionary's range [0.2, 0.8] holds none",
+		"{values: [1, 2.5, 3]}": "the dictionary's values include 2.5",
+	} {
+		// The plan's check refuses them (D36).
+		if _, err := plan.Parse([]byte(weightsPlan(t, entry)), filepath.Join(t.TempDir(), "p.yaml")); err == nil || !strings.Contains(err.Error(), want) {
+			t.Errorf("%s: got %v, want %q", entry, err, want)
+		}
+	}
+	// Sampling weights are drawn over the range itself.
+	sampling := func(entry string) *Sim {
+		src := strings.Replace(weightsPlan(t, entry), "weights: w}", "weights: w, weight_kind: sampling}", 1)
+		src = strings.Replace(src, "by: aic", "by: tic", 1)
+		s, err := New(parsePlan(t, src))
+		if err != nil {
+			t.Fatal(err)
+		}
+		return s
+	}
+	rng, _ := splitRows(t, sampling("{range: [0.5, 3]}"), n, "w")
 	sum := 0.0
 	for _, r := range rng {
 		x := parseNum(t, r[w])
