@@ -60,7 +60,7 @@ func writeDictionary(d *doc, r *runner.Result) {
 		rows = append(rows, []string{md(mdCode(u.Column)), u.Role, kind, values, md(missingCodes(common, own)), label, unit})
 	}
 	d.table([]string{"Column", "Role", "Kind", "Values", "Missing-value codes", "Label", "Unit"}, rows)
-	d.p("The data file was checked against this dictionary before any model was fitted: every value of a numeric column is a number, within its range and among its values, and every outcome value is one of its categories.")
+	d.p("The whole data file, rows outside the plan's subset too, was checked against this dictionary before any model was fitted: every value of a numeric column is a number, within its range and among its values, and every outcome value is one of its declared categories (an integer code where the plan leaves the categories to the data); missing values are not checked.")
 }
 
 func missingCodes(common, own []string) string {

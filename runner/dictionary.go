@@ -1,6 +1,9 @@
 package runner
 
 import (
+	"fmt"
+	"slices"
+
 	"ordplan/plan"
 	"ordplan/runner/data"
 )
@@ -20,13 +23,25 @@ func columnMissing(p *plan.Plan) map[string][]string {
 }
 
 // ValidateData checks the data file against the plan's dictionary: the
-// numeric columns hold numbers, within their range, among their values.
-// The outcome's categories are checked by the reader.
+// numeric columns hold numbers, within their range, among their values,
+// and every outcome value is one of its declared categories (or an
+// integer code, the categories left to the data). The dictionary
+// describes the file, so every row is checked, rows outside the plan's
+// subset too, as the report's dictionary section says; the reader checks
+// the rows it analyses again as it reads them.
 func ValidateData(p *plan.Plan) error {
 	if len(p.Dictionary) == 0 {
 		return nil
 	}
 	var rules []data.Rule
+	missing := columnMissing(p)
+	for i, o := range p.Outcomes {
+		if slices.ContainsFunc(p.Outcomes[:i], func(q plan.Outcome) bool { return q.Column == o.Column }) {
+			continue
+		}
+		rules = append(rules, data.Rule{Column: o.Column, Key: fmt.Sprintf("outcomes[%d].categories", i), Outcome: true,
+			Categories: o.Categories, Missing: missing[o.Column]})
+	}
 	for _, e := range p.Dictionary {
 		kind := p.Kind(e.Column)
 		rules = append(rules, data.Rule{Column: e.Column, Key: e.Key, Numeric: kind == "numeric",

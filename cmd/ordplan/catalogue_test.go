@@ -479,6 +479,22 @@ func subsetAges(t *testing.T, dir, id string) {
 	os.WriteFile(filepath.Join(dir, "subna.csv"), []byte(b.String()), 0o644)
 }
 
+// outcomeOutside writes subout.csv: subna.csv (subsetAges) with the
+// outcome "medium" on line 51, a row of age 15, outside age >= 18.
+func outcomeOutside(t *testing.T, dir, id string) {
+	subsetAges(t, dir, id)
+	b, err := os.ReadFile(filepath.Join(dir, "subna.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(string(b), "\n")
+	if !strings.HasSuffix(lines[50], ",15") {
+		t.Fatalf("line 51 is %q", lines[50])
+	}
+	lines[50] = "medium" + lines[50][strings.IndexByte(lines[50], ','):]
+	os.WriteFile(filepath.Join(dir, "subout.csv"), []byte(strings.Join(lines, "\n")), 0o644)
+}
+
 // imputedAges writes subna.csv (subsetAges) and two stacked files of
 // two imputed sets of it made elsewhere: subimp.csv fills every missing
 // age with 16 in set 1 and 40 in set 2, subimp2.csv with 40 in both.
@@ -965,6 +981,12 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`ordplan: fracw.csv:3: column "w": frequency weight 2.5 is not a whole number`}},
 		{id: "D33", name: "frequency weights that are not whole numbers, in ordplan fit", args: fitArgs(d("fracw.csv"), "--predictors", "a,b", "--weights", "w"), setup: fractionalWeight, code: 1,
 			want: []string{`fracw.csv:3: column "w": frequency weight 2.5 is not a whole number`, `set data.weight_kind: sampling (ordplan fit: --weight-kind sampling)`}},
+		{id: "D34", name: "an outcome value that is not a declared category, in a row outside the subset, with a dictionary", args: []string{"check"}, setup: outcomeOutside,
+			plan: edit("  file: d.csv\n", "  file: subout.csv\n  missing_values: [\"NA\", \"-9\"]\n", "  - column: y\n", "  - column: y\n    categories: [\"1\", \"2\", \"3\"]\n") + "subset:\n  - {column: age, at_least: 18}\ndictionary:\n  a: {label: A}\n  b: {label: B}\n  age: {label: Age}\n", code: 1,
+			want: []string{`subout.csv:51: column "y": value "medium" is not one of the declared categories: "1", "2", "3" (outcomes[0].categories; the data dictionary describes the whole file, rows outside the plan's subset too)`}},
+		{id: "D34", name: "an outcome value that is not an integer code, in a row outside the subset, with a dictionary", args: []string{"run"}, setup: outcomeOutside,
+			plan: edit("  file: d.csv\n", "  file: subout.csv\n  missing_values: [\"NA\", \"-9\"]\n") + "subset:\n  - {column: age, at_least: 18}\ndictionary:\n  a: {label: A}\n  b: {label: B}\n  age: {label: Age}\n", code: 1,
+			want: []string{`ordplan: subout.csv:51: column "y": value "medium" is not an integer category code (declare the categories to use text labels) (outcomes[0].categories leaves the categories to the data, which must then be integer codes; the data dictionary describes the whole file, rows outside the plan's subset too)`}},
 		{id: "D32", name: "missing values in a column the subset reads, with imputation", args: []string{"run"}, setup: subsetAges,
 			plan: edit("  file: d.csv\n", "  file: subna.csv\n  missing: impute\n  missing_values: [\"NA\", \"-9\"]\n", "[a, b]", "[a, b, age]") + "subset:\n  - {column: age, at_least: 18}\n", code: 0,
 			check: func(t *testing.T, dir, out, errs string) {

@@ -65,6 +65,11 @@ type Options struct {
 	// WholeWeights are the rows kept and the weights' sum of the whole
 	// data, for a part read alone under Sampling (PartsSummary.Weights).
 	WholeWeights *WeightTotal `json:"whole_weights,omitempty"`
+	// Unscaled reads sampling weights as the file gives them, not
+	// rescaled: a part summed before the whole data's total is known
+	// (runner/queue's wholeFiles). They are still sampling weights, so
+	// whole numbers are not asked of them (wholeCounts).
+	Unscaled bool `json:"-"`
 }
 
 // DefaultMissing are the missing-value tokens used when

@@ -286,7 +286,7 @@ type PartsSummary struct {
 }
 
 // Add counts one part's rows, kept and dropped, and the weights as read
-// (a part read without Options.Sampling), after the parts before it.
+// (a part read with Options.Unscaled), after the parts before it.
 func (s *PartsSummary) Add(ds *Dataset) {
 	s.w.add(ds.Weights)
 	s.d.Outcome = ds.Outcome

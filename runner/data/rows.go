@@ -104,7 +104,7 @@ func (r *reader) finish(t *rowTally, d *Dataset) (*Dataset, error) {
 	if err := r.wholeCounts(d); err != nil {
 		return nil, err
 	}
-	if opt.Sampling {
+	if opt.Sampling && !opt.Unscaled {
 		total := weightTotal(d.Weights)
 		if opt.Part {
 			if opt.WholeWeights == nil {

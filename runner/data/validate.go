@@ -17,6 +17,11 @@ type Rule struct {
 	Range   []float64 // [min, max] inclusive, or nil
 	Values  []string  // allowed numeric values, or nil
 	Missing []string  // the column's own missing-value codes
+	// Outcome says the column is an outcome: its values must be one of
+	// Categories (in any spelling of a boolean word), or integer codes
+	// when Categories is nil. Key is then the outcome's plan key.
+	Outcome    bool
+	Categories []string
 }
 
 // ValidationError lists the cells of a file that break its dictionary.
@@ -92,6 +97,13 @@ func ValidateDialect(path string, rules []Rule, missingTokens []string, d Dialec
 			r.readNumbers(ru.Column)
 		}
 		c := ruled{Rule: ru, index: j}
+		if ru.Outcome && ru.Categories != nil {
+			c.labels = map[string]int{}
+			for i, l := range ru.Categories {
+				c.labels[l] = i
+			}
+			spellingsOf(ru.Categories, c.labels)
+		}
 		if ru.Values != nil {
 			c.values = map[float64]bool{}
 			for _, v := range ru.Values {
@@ -138,6 +150,7 @@ type ruled struct {
 	Rule
 	index  int
 	values map[float64]bool
+	labels map[string]int // an outcome's declared categories
 }
 
 // result is the error of the problems found, nil when none.
@@ -162,12 +175,23 @@ func (r *reader) validateRecords(cols []ruled, ve *ValidationError) error {
 		}
 		for _, c := range cols {
 			cell := strings.TrimSpace(rec[c.index])
-			if r.missingIn(c.Column, cell) || !c.Numeric {
+			if r.missingIn(c.Column, cell) || !c.Numeric && !c.Outcome {
 				continue
 			}
 			var msg string
-			x, bad := r.opt.Dialect.number(cell)
+			x, bad := 0.0, ""
+			if c.Numeric {
+				x, bad = r.opt.Dialect.number(cell)
+			}
 			switch {
+			case c.Outcome && c.labels != nil:
+				if _, ok := c.labels[cell]; !ok {
+					msg = "value " + quoteCell(cell) + " is not one of the declared categories: " + quoteList(c.Categories) + " (" + c.Key + "; the data dictionary describes the whole file, rows outside the plan's subset too)"
+				}
+			case c.Outcome:
+				if _, bad := parseCode(cell); bad != "" {
+					msg = bad + " (" + c.Key + " leaves the categories to the data, which must then be integer codes; the data dictionary describes the whole file, rows outside the plan's subset too)"
+				}
 			case bad != "":
 				msg = bad + "; the data dictionary (" + c.Key + ") describes a numeric column"
 			case c.Range != nil && (x < c.Range[0] || x > c.Range[1]):

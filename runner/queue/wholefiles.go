@@ -44,7 +44,7 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 	// Sampling weights are rescaled by the whole data's total, known
 	// once every part is read: the parts are read here as they are, and
 	// the counts and spread rescaled after (wholeSampling).
-	part.Sampling, part.WholeWeights = false, nil
+	part.Unscaled, part.WholeWeights = true, nil
 	for _, p := range paths {
 		ds, err := data.Load(p, part)
 		if err != nil {
