@@ -3,6 +3,7 @@ package runner
 import (
 	"errors"
 	"fmt"
+	"maps"
 	"slices"
 	"strconv"
 	"strings"
@@ -256,12 +257,19 @@ func ResolveFit(s SingleFit) (*Analysis, error) {
 	}
 	spec := s.designSpec()
 	dopt := data.Options{Outcome: s.Outcome, Categories: s.Categories,
-		Weights: s.Weights, Sampling: s.Sampling, Offset: s.Offset, Cluster: s.Cluster, Refuse: s.Refuse, Dialect: s.Dialect}
+		Weights: s.Weights, Sampling: s.Sampling, Offset: s.Offset, Cluster: s.Cluster, Refuse: s.Refuse, Dialect: s.Dialect,
+		ColumnMissing: s.ColumnMissing}
 	a := &Analysis{Source: s.DataName(), DataFile: s.DataName(), DataPath: s.DataFile,
 		DataPaths: s.Parts, DataFiles: s.Parts, Errors: covariancePolicy(s.Covariance, s.Sampling)}
 	a.Fit = a.Errors.fitOptions(s.Workers)
 	a.Outcomes = []Reading{{Outcome: s.Outcome, Key: fmt.Sprintf("outcome %q", s.Outcome), CategoriesKey: "--categories",
 		Options: readSources(dopt, spec), Design: spec}}
+	read := readColumns(a.Outcomes[0].Options)
+	for _, col := range slices.Sorted(maps.Keys(s.ColumnMissing)) {
+		if !slices.Contains(read, col) {
+			return nil, fmt.Errorf("--missing-codes: column %q is not a column this fit reads (%s): its codes would mark nothing", col, strings.Join(read, ", "))
+		}
+	}
 	return a, nil
 }
 

@@ -28,6 +28,9 @@ type SingleFit struct {
 	Cluster     string // cluster column for clustered covariance
 	Refuse      bool
 	Dialect     data.Dialect // the data file's delimiter and decimal mark
+	// ColumnMissing are columns' own missing-value codes (--missing-codes),
+	// as a plan's dictionary.COLUMN.missing.
+	ColumnMissing map[string][]string
 	Covariance  fit.Covariance
 	Workers     int
 }

@@ -987,6 +987,12 @@ func catalogue(dir string) (items []badInput) {
 		{id: "D34", name: "an outcome value that is not an integer code, in a row outside the subset, with a dictionary", args: []string{"run"}, setup: outcomeOutside,
 			plan: edit("  file: d.csv\n", "  file: subout.csv\n  missing_values: [\"NA\", \"-9\"]\n") + "subset:\n  - {column: age, at_least: 18}\ndictionary:\n  a: {label: A}\n  b: {label: B}\n  age: {label: Age}\n", code: 1,
 			want: []string{`ordplan: subout.csv:51: column "y": value "medium" is not an integer category code (declare the categories to use text labels) (outcomes[0].categories leaves the categories to the data, which must then be integer codes; the data dictionary describes the whole file, rows outside the plan's subset too)`}},
+		{id: "D35", name: "ordplan fit --missing-codes naming a column the fit does not read", args: fitArgs(d("d.csv"), "--predictors", "a,b", "--missing-codes", "a=-9,bb=-9"), code: 1,
+			want: []string{"ordplan: --missing-codes: column \"bb\" is not a column this fit reads (y, a, b): its codes would mark nothing\n"}},
+		{id: "D35", name: "ordplan fit --missing-codes with an item that is not COLUMN=CODE", args: fitArgs(d("d.csv"), "--predictors", "a,b", "--missing-codes", "-9"), code: 2,
+			want: []string{`ordplan fit: --missing-codes: item 1 ("-9") is not COLUMN=CODE: give the column, then its codes separated by /, such as baseline_pain=-9 or age=-9/-99`}},
+		{id: "D35", name: "ordplan fit --missing-codes giving a column twice", args: fitArgs(d("d.csv"), "--predictors", "a,b", "--missing-codes", "a=-9,a=-99"), code: 2,
+			want: []string{`ordplan fit: --missing-codes: item 2 ("a=-99"): column "a" is given twice; give all its codes in one item, separated by / (a=-9/-99)`}},
 		{id: "D32", name: "missing values in a column the subset reads, with imputation", args: []string{"run"}, setup: subsetAges,
 			plan: edit("  file: d.csv\n", "  file: subna.csv\n  missing: impute\n  missing_values: [\"NA\", \"-9\"]\n", "[a, b]", "[a, b, age]") + "subset:\n  - {column: age, at_least: 18}\n", code: 0,
 			check: func(t *testing.T, dir, out, errs string) {

@@ -334,3 +334,34 @@ type emptyItemError struct {
 func (e *emptyItemError) Error() string {
 	return fmt.Sprintf("item %d of %d in %q is empty (nothing but spaces between two commas, or a comma at either end): remove the extra comma or give the missing name", e.item, e.of, e.list)
 }
+
+// parseMissingCodes reads --missing-codes, a column's own missing-value
+// codes as the plan's dictionary.COLUMN.missing gives them:
+// COLUMN=CODE/CODE items, comma separated (nil when empty). A column
+// given twice, an item without "=", an empty name or code is refused.
+func parseMissingCodes(s string) (map[string][]string, error) {
+	items, err := listItems(s)
+	if err != nil || items == nil {
+		return nil, err
+	}
+	out := map[string][]string{}
+	for i, it := range items {
+		col, codes, ok := strings.Cut(it, "=")
+		col = strings.TrimSpace(col)
+		if !ok || col == "" {
+			return nil, fmt.Errorf("item %d (%q) is not COLUMN=CODE: give the column, then its codes separated by /, such as baseline_pain=-9 or age=-9/-99", i+1, it)
+		}
+		if _, twice := out[col]; twice {
+			return nil, fmt.Errorf("item %d (%q): column %q is given twice; give all its codes in one item, separated by / (%s=-9/-99)", i+1, it, col, col)
+		}
+		var list []string
+		for _, c := range strings.Split(codes, "/") {
+			if c = strings.TrimSpace(c); c == "" {
+				return nil, fmt.Errorf("item %d (%q): an empty code; give codes separated by /, such as %s=-9/-99 (an empty cell is missing anyway)", i+1, it, col)
+			}
+			list = append(list, c)
+		}
+		out[col] = list
+	}
+	return out, nil
+}

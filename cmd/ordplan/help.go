@@ -43,7 +43,7 @@ var commands = []command{
 			"covariance": "--covariance sandwich", "nonparallel": "--nonparallel pilot", "all-nonparallel": "--all-nonparallel",
 			"constrained": "--constrained g1:pilot,female", "stereotype": "--approach adjacent --stereotype",
 			"weights": "--weights w", "weight-kind": "--weights w --weight-kind sampling", "cluster": "--covariance clustered --cluster street",
-			"offset": "--offset exposure", "missing": "--missing refuse", "delimiter": "--delimiter semicolon --decimal comma", "decimal": "--delimiter semicolon --decimal comma",
+			"offset": "--offset exposure", "missing": "--missing refuse", "missing-codes": "--missing-codes baseline_pain=-9,age=-9/-99", "delimiter": "--delimiter semicolon --decimal comma", "decimal": "--delimiter semicolon --decimal comma",
 			"sheet": "--data survey.xlsx --sheet wave2", "header-row": "--data survey.xlsx --header-row 3", "baseline": "--approach adjacent --all-nonparallel --baseline neutral",
 			"confidence-level": "--confidence-level 0.9", "json": "--json",
 			"queue": "--queue nats://10.0.0.5:4222 --parts a.csv,b.csv", "parts": "--parts part1.csv,part2.csv",

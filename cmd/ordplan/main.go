@@ -135,7 +135,7 @@ type fitFlags struct {
 	dataFile, outcome, categories, predictors, direction *string
 	nonparallel, constrained, weights, weightKind        *string
 	cluster, offset, missing, baseline, parts            *string
-	delimiter, decimal, sheet                            *string
+	delimiter, decimal, sheet, missingCodes              *string
 	headerRow                                            *int
 	allFree, stereotype, asJSON                          *bool
 	level                                                *float64
@@ -223,32 +223,33 @@ func noEstimates(stderr io.Writer, res *fit.Result) int {
 // defineFitFlags declares the flags of `ordplan fit` on fs.
 func defineFitFlags(fs *flag.FlagSet) *fitFlags {
 	f := &fitFlags{
-		dataFile:    fs.String("data", "", "the data file (required unless --parts): CSV text with a header line, an .xlsx workbook (*.xlsx) or a flat Parquet file (*.parquet)"),
-		outcome:     fs.String("outcome", "", "outcome column (required)"),
-		categories:  fs.String("categories", "", "the outcome's category labels in order, lowest first (default: integer codes sorted)"),
-		predictors:  fs.String("predictors", "", "predictor terms, comma separated: columns, or the compact forms of categorical columns, transformations and interactions (see below)"),
-		approach:    fit.Cumulative,
-		direction:   fs.String("direction", "forward", "stage direction: forward or backward"),
-		link:        fit.Logit,
-		covariance:  fit.Observed,
-		nonparallel: fs.String("nonparallel", "", "predictors whose slopes vary freely across equations"),
-		allFree:     fs.Bool("all-nonparallel", false, "make every predictor nonparallel"),
-		constrained: fs.String("constrained", "", "predictors whose slopes vary by a common factor: a,b or name:a,b;other:c"),
-		stereotype:  fs.Bool("stereotype", false, "adjacent model with every predictor in one constrained group"),
-		weights:     fs.String("weights", "", "column of weights (frequency weights unless --weight-kind sampling)"),
-		weightKind:  fs.String("weight-kind", "frequency", "frequency or sampling weights; sampling weights imply sandwich errors"),
-		cluster:     fs.String("cluster", "", "column of cluster ids, for --covariance clustered"),
-		offset:      fs.String("offset", "", "column added to x'b in every equation"),
-		missing:     fs.String("missing", "drop", "rows with a missing value: drop (counted) or refuse"),
-		delimiter:   fs.String("delimiter", "comma", "the character between the data file's fields: comma, semicolon or tab"),
-		decimal:     fs.String("decimal", "point", "the decimal mark of the data file's numbers: point (1.5) or comma (1,5)"),
-		sheet:       fs.String("sheet", "", "for an .xlsx workbook: the worksheet to read (default: the first)"),
-		headerRow:   fs.Int("header-row", 1, "for an .xlsx workbook: the sheet row holding the column names (rows above it are skipped)"),
-		baseline:    fs.String("baseline", "", "also show an adjacent nonparallel logit as baseline-category logits against this category"),
-		level:       fs.Float64("confidence-level", 0.95, "confidence level of the intervals"),
-		asJSON:      fs.Bool("json", false, "print one JSON object instead of the table"),
-		queue:       addQueueFlags(fs, "with --parts: the NATS JetStream server whose workers hold the parts and sum the fit and its Lipsitz test over them", true),
-		parts:       fs.String("parts", "", "the data held as parts instead of --data: files with the same columns, comma separated (names or patterns, parts/*.csv: its files in name order), read in order as one data set (as the plan key data.parts); with --queue, workers hold the parts and sum the fit and its Lipsitz test over them"),
+		dataFile:     fs.String("data", "", "the data file (required unless --parts): CSV text with a header line, an .xlsx workbook (*.xlsx) or a flat Parquet file (*.parquet)"),
+		outcome:      fs.String("outcome", "", "outcome column (required)"),
+		categories:   fs.String("categories", "", "the outcome's category labels in order, lowest first (default: integer codes sorted)"),
+		predictors:   fs.String("predictors", "", "predictor terms, comma separated: columns, or the compact forms of categorical columns, transformations and interactions (see below)"),
+		approach:     fit.Cumulative,
+		direction:    fs.String("direction", "forward", "stage direction: forward or backward"),
+		link:         fit.Logit,
+		covariance:   fit.Observed,
+		nonparallel:  fs.String("nonparallel", "", "predictors whose slopes vary freely across equations"),
+		allFree:      fs.Bool("all-nonparallel", false, "make every predictor nonparallel"),
+		constrained:  fs.String("constrained", "", "predictors whose slopes vary by a common factor: a,b or name:a,b;other:c"),
+		stereotype:   fs.Bool("stereotype", false, "adjacent model with every predictor in one constrained group"),
+		weights:      fs.String("weights", "", "column of weights (frequency weights unless --weight-kind sampling)"),
+		weightKind:   fs.String("weight-kind", "frequency", "frequency or sampling weights; sampling weights imply sandwich errors"),
+		cluster:      fs.String("cluster", "", "column of cluster ids, for --covariance clustered"),
+		offset:       fs.String("offset", "", "column added to x'b in every equation"),
+		missing:      fs.String("missing", "drop", "rows with a missing value: drop (counted) or refuse"),
+		missingCodes: fs.String("missing-codes", "", "a column's own missing-value codes, as the plan's dictionary.COLUMN.missing: COLUMN=CODE/CODE, comma separated (a code that is a number also marks it written otherwise, -9.0 for -9); the usual markers (empty, NA, NaN, .) stay missing"),
+		delimiter:    fs.String("delimiter", "comma", "the character between the data file's fields: comma, semicolon or tab"),
+		decimal:      fs.String("decimal", "point", "the decimal mark of the data file's numbers: point (1.5) or comma (1,5)"),
+		sheet:        fs.String("sheet", "", "for an .xlsx workbook: the worksheet to read (default: the first)"),
+		headerRow:    fs.Int("header-row", 1, "for an .xlsx workbook: the sheet row holding the column names (rows above it are skipped)"),
+		baseline:     fs.String("baseline", "", "also show an adjacent nonparallel logit as baseline-category logits against this category"),
+		level:        fs.Float64("confidence-level", 0.95, "confidence level of the intervals"),
+		asJSON:       fs.Bool("json", false, "print one JSON object instead of the table"),
+		queue:        addQueueFlags(fs, "with --parts: the NATS JetStream server whose workers hold the parts and sum the fit and its Lipsitz test over them", true),
+		parts:        fs.String("parts", "", "the data held as parts instead of --data: files with the same columns, comma separated (names or patterns, parts/*.csv: its files in name order), read in order as one data set (as the plan key data.parts); with --queue, workers hold the parts and sum the fit and its Lipsitz test over them"),
 	}
 	fs.TextVar(&f.approach, "approach", fit.Cumulative, "how categories are compared: "+fit.ComparisonWords.OrList())
 	fs.TextVar(&f.link, "link", fit.Logit, "link: "+fit.LinkWords.OrList())
@@ -272,6 +273,9 @@ func (f *fitFlags) usageProblem(fs *flag.FlagSet) string {
 		if _, err := listItems(l.v); err != nil {
 			return fmt.Sprintf("--%s: %v", l.name, err)
 		}
+	}
+	if _, err := parseMissingCodes(*f.missingCodes); err != nil {
+		return "--missing-codes: " + err.Error()
 	}
 	if _, err := parseGroups(*f.constrained); errors.Is(err, errEmptyGroup) || errors.As(err, new(*emptyItemError)) {
 		return "--constrained: " + err.Error()
@@ -352,6 +356,7 @@ func (f *fitFlags) single() (runner.SingleFit, error) {
 		Link: f.link, Nonparallel: checkedList(*f.nonparallel), Weights: *f.weights, Offset: *f.offset,
 		Refuse: *f.missing == "refuse", Covariance: f.covariance, Cluster: *f.cluster, Sampling: *f.weightKind == "sampling"}
 	s.Dialect, _ = data.ParseDialect(*f.delimiter, *f.decimal) // checked in usageProblem
+	s.ColumnMissing, _ = parseMissingCodes(*f.missingCodes)    // checked in usageProblem
 	s.Dialect.Sheet, s.Dialect.HeaderRow = *f.sheet, *f.headerRow
 	if *f.allFree {
 		s.Nonparallel = s.Predictors

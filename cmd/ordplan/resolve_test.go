@@ -56,6 +56,10 @@ func TestResolvePlanAndFlagsAgree(t *testing.T) {
 			[]string{"--predictors", "x1", "--cluster", "site", "--offset", "off", "--missing", "refuse",
 				"--delimiter", "semicolon", "--decimal", "comma", "--covariance", "clustered"},
 			runner.CovariancePolicy{Covariance: fit.Clustered}},
+		{"a column's own missing-value codes",
+			"data: {file: d.csv}\npredictors: [x1, x2]\ndictionary:\n  x1: {missing: [\"-9\", \"-99\"]}\n  x2: {label: X2}\n",
+			[]string{"--predictors", "x1,x2", "--missing-codes", "x1=-9/-99"},
+			runner.CovariancePolicy{Covariance: fit.Observed}},
 		{"categorical column, transformation, interaction",
 			"data: {file: d.csv}\ncategorical:\n  g: {levels: [a, b, c], reference: b}\n" +
 				"predictors:\n  - {name: dose_log, column: dose, log: {shift: 1}}\n  - g\n  - {interact: [dose_log, g]}\n",
