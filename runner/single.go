@@ -31,8 +31,8 @@ type SingleFit struct {
 	// ColumnMissing are columns' own missing-value codes (--missing-codes),
 	// as a plan's dictionary.COLUMN.missing.
 	ColumnMissing map[string][]string
-	Covariance  fit.Covariance
-	Workers     int
+	Covariance    fit.Covariance
+	Workers       int
 }
 
 // DataName names the data in messages and summaries: the file, or the
