@@ -12,6 +12,7 @@ import (
 
 	"ordplan/render/numfmt"
 	"ordplan/runner"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 
@@ -109,13 +110,39 @@ func writeNewRows(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			neg++
 		}
 	}
-	d.p("The chosen model's predictions for the %d rows of `%s` (%d rows read, %d skipped for a missing value) are in `%s`: for each row its line in the file and the file's own columns (so a row label travels with its predictions), the category probabilities (`prob_CATEGORY`), the cumulative probabilities P(y <= m) (`cumprob_CATEGORY`), the expected category (`expected`, categories scored 1 to %d), the most likely category, the linear predictors (`linear_m`) and whether the row lies outside the population the model was fitted to (`outside`, with the reasons in `outside_why`), each number with its delta-method standard error (`se_...`) and its %s interval (`low_%s_...`, `high_%s_...`). The interval of a linear predictor is the number plus and minus %s standard errors. That of a probability is made on its log-odds scale, logit(p) plus and minus the same multiple of the error se/(p(1 − p)), and transformed back, so that it stays between 0 and 1 and is not symmetric about p near either end (empty for a negative probability); that of the expected category likewise on the log-odds scale of its place between 1 and %d. Rows with a negative predicted probability: %d.",
-		nr.Rows.N, nr.File, nr.Rows.RowsRead, len(nr.Rows.Skipped), predictionsFile(or), len(or.Data.Categories), pct(level), lvText(level), lvText(level), times, len(or.Data.Categories), neg)
+	d.p("The chosen model's predictions for the %d rows of `%s` (%d rows read, %s) are in `%s`: for each row its line in the file and the file's own columns (so a row label travels with its predictions), the category probabilities (`prob_CATEGORY`), the cumulative probabilities P(y <= m) (`cumprob_CATEGORY`), the expected category (`expected`, categories scored 1 to %d), the most likely category, the linear predictors (`linear_m`) and whether the row lies outside the population the model was fitted to (`outside`, with the reasons in `outside_why`), each number with its delta-method standard error (`se_...`) and its %s interval (`low_%s_...`, `high_%s_...`). The interval of a linear predictor is the number plus and minus %s standard errors. That of a probability is made on its log-odds scale, logit(p) plus and minus the same multiple of the error se/(p(1 − p)), and transformed back, so that it stays between 0 and 1 and is not symmetric about p near either end (empty for a negative probability); that of the expected category likewise on the log-odds scale of its place between 1 and %d. Rows with a negative predicted probability: %d.",
+		nr.Rows.N, nr.File, nr.Rows.RowsRead, skippedNewRows(nr.Rows), predictionsFile(or), len(or.Data.Categories), pct(level), lvText(level), lvText(level), times, len(or.Data.Categories), neg)
 	if nr.DF != nil {
 		d.p("On imputed data each number was predicted on each of the %d imputed sets by that set's fit and pooled by Rubin's rules: the prediction is the mean over the sets, its standard error the square root of the mean squared delta-method error plus (1 + 1/%d) times the variance between the sets, and each standard error is followed by its Barnard-Rubin degrees of freedom (`df_...`, empty when the sets agree) ; the intervals use t on them. The most likely category is that of the pooled probabilities; a row is flagged negative when a pooled probability or any set's is.",
 			or.Imputed.M, or.Imputed.M)
 	}
 	writeNewRowsOutside(d, or)
+}
+
+// skippedListed is how many new rows skipped for a missing value the
+// report names; decisions.json lists every one (new_rows_skipped).
+const skippedListed = 10
+
+// skippedNewRows says how many new rows were left out of the predictions
+// for a missing value, and which: the lines of the first few, with the
+// columns each misses.
+func skippedNewRows(rs *data.Rows) string {
+	n := len(rs.Skipped)
+	if n == 0 {
+		return "none skipped for a missing value"
+	}
+	lines := make([]string, 0, min(n, skippedListed))
+	for i, line := range rs.Skipped[:min(n, skippedListed)] {
+		lines = append(lines, fmt.Sprintf("%d (%s)", line, strings.Join(rs.SkippedColumns[i], ", ")))
+	}
+	which := "line " + lines[0]
+	if n > 1 {
+		which = "lines " + strings.Join(lines, ", ")
+	}
+	if n > skippedListed {
+		which += fmt.Sprintf(" and %d more", n-skippedListed)
+	}
+	return fmt.Sprintf("%d skipped for a missing value and not predicted: %s, the missing columns in brackets; every one is in decisions.json's `new_rows_skipped`", n, which)
 }
 
 // newRowsListed is how many rows outside the population fitted the report

@@ -19,6 +19,26 @@ type NewRowOutside struct {
 	Reasons []string `json:"reasons"`
 }
 
+// NewRowSkipped is a new row left out of the predictions for a missing
+// value: its line in the file and the columns read that it misses.
+type NewRowSkipped struct {
+	Line    int      `json:"line"`
+	Missing []string `json:"missing"`
+}
+
+// SkippedNewRows lists the new rows skipped for a missing value (nil:
+// none).
+func SkippedNewRows(rs *data.Rows) []NewRowSkipped {
+	if rs == nil {
+		return nil
+	}
+	var out []NewRowSkipped
+	for i, line := range rs.Skipped {
+		out = append(out, NewRowSkipped{Line: line, Missing: rs.SkippedColumns[i]})
+	}
+	return out
+}
+
 // flagNewRows says, for each new row, why it lies outside the population
 // the chosen model was fitted to, each reason led by the plan key or
 // word it rests on:

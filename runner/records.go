@@ -92,6 +92,10 @@ type OutcomeDecisions struct {
 	// population the chosen model was fitted to, with the reasons (the
 	// predictions file's outside_why); absent when none.
 	NewRowsOutside []NewRowOutside `json:"new_rows_outside,omitempty"`
+	// NewRowsSkipped: the new rows left out of the predictions for a
+	// missing value, every one, with the columns each misses; absent
+	// when none.
+	NewRowsSkipped []NewRowSkipped `json:"new_rows_skipped,omitempty"`
 	// Terms: how each predictor term became design columns, with every
 	// constant frozen from the data (omitted when every term is a numeric
 	// column as it is).
@@ -268,6 +272,7 @@ func BuildDecisions(r *Result) *Decisions {
 		od.LevelPairs = or.LevelPairs
 		if or.NewRows != nil {
 			od.NewRowsOutside = or.NewRows.Flagged
+			od.NewRowsSkipped = SkippedNewRows(or.NewRows.Rows)
 		}
 		d.Outcomes = append(d.Outcomes, od)
 	}

@@ -366,6 +366,15 @@ func TestLoadRows(t *testing.T) {
 	if rs.N != 2 || rs.X[0] != 3 || rs.X[1] != 2 || len(rs.Skipped) != 1 || rs.Skipped[0] != 3 || rs.Lines[1] != 4 {
 		t.Fatalf("%+v", rs)
 	}
+	if !reflect.DeepEqual(rs.SkippedColumns, [][]string{{"b"}}) {
+		t.Errorf("skipped columns %q", rs.SkippedColumns)
+	}
+	// Every column a skipped row misses is named; its other cells are
+	// not read (x is no error there).
+	os.WriteFile(p, []byte("id,b,a\n1,2,3\n2,,NA\n3,x,\n"), 0o644)
+	if rs, err := LoadRows(p, []string{"a", "b"}, "", nil); err != nil || !reflect.DeepEqual(rs.SkippedColumns, [][]string{{"a", "b"}, {"a"}}) || !reflect.DeepEqual(rs.Skipped, []int{3, 4}) {
+		t.Errorf("%v: skipped %v, columns %q", err, rs.Skipped, rs.SkippedColumns)
+	}
 	os.WriteFile(p, []byte("a,b\n1,x\n"), 0o644)
 	if _, err := LoadRows(p, []string{"a", "b"}, "", nil); err == nil || !strings.Contains(err.Error(), `new.csv:2: column "b"`) {
 		t.Fatalf("%v", err)

@@ -21,7 +21,10 @@ type Rows struct {
 	Cells    [][]string
 	RowsRead int
 	Skipped  []int  // lines skipped for a missing value
-	SHA256   string // hex SHA-256 of the file's bytes
+	// SkippedColumns are, per skipped line, the columns read whose cells
+	// are missing there (in the order of the columns read).
+	SkippedColumns [][]string
+	SHA256         string // hex SHA-256 of the file's bytes
 	// Fails lists, per kept row, the subset conditions (Options.Keep, by
 	// index) the row fails, as the data's reader decides; Undecided those
 	// it cannot be checked against (its cell there is missing); Unchecked
@@ -116,12 +119,15 @@ func LoadNewRows(path string, predictors []string, levels map[string][]string, o
 		rs.RowsRead++
 		line, _ := cr.FieldPos(0)
 		vals := make([]float64, len(cols))
-		skip := false
+		var missing []string
 		for j, c := range cols {
 			cell := strings.TrimSpace(rec[pos[j]])
 			if r.missingIn(c, cell) {
-				skip = true
-				break
+				missing = append(missing, c)
+				continue
+			}
+			if missing != nil {
+				continue // a skipped row: its other cells are not read
 			}
 			var v float64
 			var msg string
@@ -149,8 +155,9 @@ func LoadNewRows(path string, predictors []string, levels map[string][]string, o
 			}
 			vals[j] = v
 		}
-		if skip {
+		if missing != nil {
 			rs.Skipped = append(rs.Skipped, line)
+			rs.SkippedColumns = append(rs.SkippedColumns, missing)
 			continue
 		}
 		rs.X = append(rs.X, vals[:K]...)
