@@ -20,7 +20,7 @@ type Rows struct {
 	Header   []string
 	Cells    [][]string
 	RowsRead int
-	Skipped  []int  // lines skipped for a missing value
+	Skipped  []int // lines skipped for a missing value
 	// SkippedColumns are, per skipped line, the columns read whose cells
 	// are missing there (in the order of the columns read).
 	SkippedColumns [][]string
