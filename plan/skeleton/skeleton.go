@@ -51,6 +51,16 @@ func KindOf(p data.Profile, haveData bool) Kind {
 		// number, not a measurement; as a predictor it would give the row
 		// order an effect.
 		return Kind{Word: "identifier", Describe: fmt.Sprintf("numeric, whole numbers from %s to %s in %d rows: a row number or identifier?", num(p.Min), num(p.Max), p.Rows)}
+	case clusterLike(p):
+		// Codes repeated over rows, as the ids of clinics or schools are:
+		// a cluster column, or an identifier, not a measurement whose
+		// numbers mean an amount.
+		what := "text"
+		if p.Numeric {
+			what = fmt.Sprintf("numeric, whole numbers from %s to %s", num(p.Min), num(p.Max))
+		}
+		return Kind{Word: "cluster?", Describe: fmt.Sprintf("%s, %d distinct codes over %d rows (%.3g rows each on average): cluster ids (clinics, schools, ...) or identifiers, not an amount?%s",
+			what, p.Count, p.Rows-p.Missing, float64(p.Rows-p.Missing)/float64(p.Count), miss)}
 	case p.Numeric && p.Integer && !p.Many && p.Distinct >= 3 && p.Distinct <= 10:
 		return Kind{Word: "ordered?", Candidate: true,
 			Describe: fmt.Sprintf("integer codes %s (%d values): ordered categories, or a count?%s", strings.Join(p.Values, ", "), p.Distinct, miss)}
@@ -106,7 +116,7 @@ func Write(in Input) ([]byte, error) {
 			outcome = outcomeByName(in.Columns)
 		}
 	}
-	var preds, skipped, weighty []string
+	var preds, skipped, weighty, clustery []string
 	var cats []int // text columns used as categorical predictors
 	for i, c := range in.Columns {
 		if i == outcome {
@@ -115,6 +125,8 @@ func Write(in Input) ([]byte, error) {
 		switch {
 		case c.Numeric && weightLike(c):
 			weighty = append(weighty, c.Name)
+		case kinds[i].Word == "cluster?":
+			clustery = append(clustery, c.Name)
 		case kinds[i].Word == "numeric" || kinds[i].Word == "binary" || kinds[i].Word == "ordered?" || kinds[i].Word == "unknown":
 			preds = append(preds, c.Name)
 		case kinds[i].Word == "categorical" && !c.Many && c.Distinct >= 2 && c.Distinct <= 12 && 2*c.Distinct <= c.Rows-c.Missing:
@@ -165,6 +177,8 @@ func Write(in Input) ([]byte, error) {
 			role = "  <- outcome"
 		case contains(weighty, c.Name):
 			role = "  (weights? not a predictor below: see data.weights)"
+		case contains(clustery, c.Name):
+			role = "  (clusters? not a predictor below: see data.cluster)"
 		case contains(skipped, c.Name):
 			role = "  (not a predictor below: declare it or leave it out)"
 		}
@@ -181,12 +195,31 @@ func Write(in Input) ([]byte, error) {
 		if len(weighty) > 1 {
 			look = " look"
 		}
-		w("  weights: null           # a column of case weights (and weight_kind: frequency or sampling); %s%s like weights", words.AndList(weighty), look)
+		var fractional []string
+		for _, c := range in.Columns {
+			if contains(weighty, c.Name) && !c.Integer {
+				fractional = append(fractional, c.Name)
+			}
+		}
+		kind := ""
+		if len(fractional) > 0 {
+			// Frequency weights are counts: the reader refuses others (D33).
+			kind = fmt.Sprintf(" (%s not whole numbers: sampling weights, weight_kind: sampling; frequency weights are counts)", words.AndList(fractional))
+		}
+		w("  weights: null           # a column of case weights (and weight_kind: frequency or sampling); %s%s like weights%s", words.AndList(weighty), look, kind)
 	} else {
 		w("  weights: null           # a column of case weights")
 	}
 	w("  offset: null            # a known term added to x'b: L = tau - x'b - offset")
-	w("  cluster: null           # a column of cluster ids (needs covariance: clustered)")
+	if len(clustery) > 0 {
+		look := " looks"
+		if len(clustery) > 1 {
+			look = " look"
+		}
+		w("  cluster: null           # a column of cluster ids (needs covariance: clustered); %s%s like cluster ids or identifiers (a predictor only as a categorical column, one effect per cluster)", words.AndList(clustery), look)
+	} else {
+		w("  cluster: null           # a column of cluster ids (needs covariance: clustered)")
+	}
 	w("")
 	w("outcomes:")
 	if outcome >= 0 {
@@ -453,8 +486,54 @@ func weightLike(c data.Profile) bool {
 	return c.Numeric && c.Min >= 0 && hasAny(strings.ToLower(c.Name), weightNames)
 }
 
-// idNames begin words of the names of identifier columns.
-var idNames = []string{"id", "code", "key", "record", "row", "subject", "participant", "respondent", "case", "uuid"}
+// idNames begin words of the names of identifier columns, clusterNames
+// of the units that group rows into clusters.
+var (
+	idNames      = []string{"id", "code", "key", "record", "row", "subject", "participant", "respondent", "case", "uuid"}
+	clusterNames = []string{"clinic", "cluster", "school", "hospital", "centre", "center", "practice", "household", "village", "ward", "family", "class", "team"}
+)
+
+// clusterLike reports whether a column holds codes repeated over rows, as
+// the ids of clinics or schools do: more than 10 distinct values, each in
+// two rows or more on average, that are whole numbers running without a
+// gap from 0 or 1 (1..48) or texts of a few letters and a number (c1..c48)
+// when there are more than MaxValues of them, or any whole numbers or
+// texts under a name that says identifier or cluster (clinic, school, id,
+// ...). Such a column is offered as data.cluster, not as a predictor.
+func clusterLike(p data.Profile) bool {
+	n := p.Rows - p.Missing
+	if p.Count <= 10 || 2*p.Count > n || weightLike(p) {
+		return false
+	}
+	named := hasAny(strings.ToLower(p.Name), idNames) || hasAny(strings.ToLower(p.Name), clusterNames)
+	switch {
+	case p.Numeric && !p.Integer:
+		return false
+	case p.Numeric && (p.Min == 0 || p.Min == 1) && p.Max-p.Min+1 == float64(p.Count):
+		return p.Many || named
+	case !p.Numeric && p.Many && codeLabels(p.Values):
+		return true
+	}
+	return named
+}
+
+// codeLabels reports whether every text is a few letters (the same for
+// all) followed by a number, as c1, c2, ..., c48.
+func codeLabels(values []string) bool {
+	prefix := ""
+	for i, v := range values {
+		j := strings.IndexFunc(v, unicode.IsDigit)
+		if j < 0 || j > 4 || strings.TrimLeftFunc(v[j:], unicode.IsDigit) != "" {
+			return false
+		}
+		if i == 0 {
+			prefix = v[:j]
+		} else if v[:j] != prefix {
+			return false
+		}
+	}
+	return len(values) > 0
+}
 
 // scaleLike reports whether text values look like the points of an
 // ordered scale: all but at most one (and at least two) hold a scale word.

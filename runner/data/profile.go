@@ -21,6 +21,10 @@ type Profile struct {
 	Values   []string
 	Distinct int  // distinct non-missing values (counted up to MaxValues+1)
 	Many     bool // more than MaxValues distinct values
+	// Count is the number of distinct non-missing values, counted up to
+	// MaxCount (0: more): with Rows and Missing it says whether the
+	// values repeat, as the ids of clusters do, or are one per row.
+	Count int
 	// Codes are the conventional missing-value codes (missingLikeCodes:
 	// -7, -8, -9, -77, ..., -9999) a numeric column holds, in order, and
 	// MinOther the smallest of its other values (+Inf when none): codes
@@ -35,6 +39,9 @@ var missingLikeCodes = []float64{-9999, -999, -99, -98, -97, -9, -8, -7, -888, -
 
 // MaxValues is the number of distinct values a profile lists.
 const MaxValues = 30
+
+// MaxCount is the number of distinct values a profile counts.
+const MaxCount = 10000
 
 // ProfileFile reads a data file in the given dialect (delimiter and
 // decimal mark of CSV text, sheet and header row of a workbook; a Parquet
@@ -57,9 +64,11 @@ func ProfileFile(path string, missingTokens []string, d Dialect) ([]Profile, err
 	}
 	out := make([]Profile, len(names))
 	seen := make([]map[string]bool, len(names))
+	all := make([]map[string]struct{}, len(names)) // nil once past MaxCount
 	for i, n := range names {
 		out[i] = Profile{Name: n, Numeric: true, Integer: true, Min: math.Inf(1), Max: math.Inf(-1), MinOther: math.Inf(1)}
 		seen[i] = map[string]bool{}
+		all[i] = map[string]struct{}{}
 	}
 	for {
 		rec, err := r.cr.Read()
@@ -76,6 +85,11 @@ func ProfileFile(path string, missingTokens []string, d Dialect) ([]Profile, err
 			if r.missing[cell] {
 				p.Missing++
 				continue
+			}
+			if all[i] != nil {
+				if all[i][cell] = struct{}{}; len(all[i]) > MaxCount {
+					all[i] = nil
+				}
 			}
 			if !seen[i][cell] && !p.Many {
 				seen[i][cell] = true
@@ -122,6 +136,7 @@ func ProfileFile(path string, missingTokens []string, d Dialect) ([]Profile, err
 			p.Values = slices.Compact(p.Values)
 		}
 		p.Distinct = len(p.Values)
+		p.Count = len(all[i])
 		if p.Numeric {
 			slices.SortFunc(p.Values, func(a, b string) int {
 				x, _ := d.number(a)

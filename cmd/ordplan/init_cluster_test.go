@@ -1,0 +1,51 @@
+package main
+
+import (
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"ordplan/plan"
+)
+
+// Codes repeated over rows, as the ids of clinics are (1..48, or c1..c48,
+// over 700 rows), are offered as the cluster column and left out of the
+// predictors, not described as a numeric predictor with a range; whole
+// numbers that do not run from 1 without a gap (ages) and a few codes
+// under a name that says nothing of clusters stay predictors. Invented
+// data: 700 rows of seeded arithmetic. Weights that are not whole numbers
+// are said to be sampling weights, since frequency weights are counts.
+func TestInitOffersClusterIDs(t *testing.T) {
+	dir := t.TempDir()
+	var b strings.Builder
+	b.WriteString("grade,clinic,centre,age,dose,sw\n")
+	for i := range 700 {
+		fmt.Fprintf(&b, "%d,%d,c%d,%d,%d,%.3f\n", 1+i%3, 1+(i*7)%48, 1+(i*11)%48, 18+(i*13)%60, i%12, 0.5+float64(i%50)/20)
+	}
+	dataPath := filepath.Join(dir, "t.csv")
+	os.WriteFile(dataPath, []byte(b.String()), 0o644)
+	planPath := filepath.Join(dir, "t.yaml")
+	if _, errs, code := runCLI("init", planPath, "--data", dataPath, "--outcome", "grade"); code != 0 {
+		t.Fatal(errs)
+	}
+	text, _ := os.ReadFile(planPath)
+	for _, want := range []string{
+		"#   clinic  numeric, whole numbers from 1 to 48, 48 distinct codes over 700 rows (14.6 rows each on average): cluster ids (clinics, schools, ...) or identifiers, not an amount?  (clusters? not a predictor below: see data.cluster)",
+		"#   centre  text, 48 distinct codes over 700 rows (14.6 rows each on average): cluster ids (clinics, schools, ...) or identifiers, not an amount?  (clusters? not a predictor below: see data.cluster)",
+		"  cluster: null           # a column of cluster ids (needs covariance: clustered); clinic and centre look like cluster ids or identifiers",
+		"predictors: [age, dose]",
+		"  weights: null           # a column of case weights (and weight_kind: frequency or sampling); sw looks like weights (sw not whole numbers: sampling weights, weight_kind: sampling; frequency weights are counts)",
+	} {
+		if !strings.Contains(string(text), want) {
+			t.Errorf("want %q in\n%s", want, text)
+		}
+	}
+	if strings.Contains(string(text), "  clinic:") {
+		t.Errorf("clinic is described in the dictionary as a predictor:\n%s", text)
+	}
+	if _, err := plan.Load(planPath); err != nil {
+		t.Fatalf("not a valid plan: %v\n%s", err, text)
+	}
+}
