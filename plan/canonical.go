@@ -40,10 +40,13 @@ type canonPlan struct {
 	Tests       canonTests       `json:"tests"`
 	Rules       []map[string]any `json:"rules"`
 	Covariance  fit.Covariance   `json:"covariance"`
-	Report      canonReport      `json:"report"`
-	Inference   canonInference   `json:"inference"`
-	Dictionary  map[string]any   `json:"dictionary,omitempty"`
-	Assumptions map[string]any   `json:"assumptions,omitempty"`
+	// FewClusters is absent when none, so that plans without it keep
+	// their canonical form (and registrations).
+	FewClusters *fit.ClusterCorrection `json:"few_clusters,omitempty"`
+	Report      canonReport            `json:"report"`
+	Inference   canonInference         `json:"inference"`
+	Dictionary  map[string]any         `json:"dictionary,omitempty"`
+	Assumptions map[string]any         `json:"assumptions,omitempty"`
 }
 
 type canonData struct {
@@ -143,11 +146,12 @@ func nonNilOf[T any](s []T) []T {
 
 func (p *Plan) canonical() canonPlan {
 	c := canonPlan{
-		Version:    1,
-		Title:      p.Title,
-		Seed:       p.Seed,
-		Predictors: canonTerms(p.Terms),
-		Covariance: p.Covariance,
+		Version:     1,
+		Title:       p.Title,
+		Seed:        p.Seed,
+		Predictors:  canonTerms(p.Terms),
+		Covariance:  p.Covariance,
+		FewClusters: nonDefaultCorrection(p.FewClusters),
 		Data: canonData{
 			File:          optional(p.Data.File),
 			Parts:         p.Data.Parts,
@@ -362,4 +366,13 @@ func headerRowCanon(h int) int {
 		return 0
 	}
 	return h
+}
+
+// nonDefaultCorrection is the few-cluster correction for the canonical
+// form: nil for none.
+func nonDefaultCorrection(c fit.ClusterCorrection) *fit.ClusterCorrection {
+	if c == fit.NoCorrection {
+		return nil
+	}
+	return &c
 }

@@ -185,6 +185,7 @@ func (d *decoder) decodePlan(root *yaml.Node, p *Plan) {
 		p.Rules = d.decodeRules(v)
 	}
 	typedWord(m, "covariance", "covariance", fit.CovarianceWords, fit.CovarianceWords.All(), &p.Covariance)
+	typedWord(m, "few_clusters", "few-cluster correction", fit.ClusterCorrectionWords, fit.ClusterCorrectionWords.All(), &p.FewClusters)
 	d.decodeReport(m.get("report"), &p.Report)
 	d.decodeInference(m.get("inference"), &p.Inference, p.Dir)
 	if v := m.get("dictionary"); v != nil {

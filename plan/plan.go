@@ -26,12 +26,15 @@ type Plan struct {
 	// Categorical declares the columns read as levels.
 	Categorical []CategoricalColumn
 	// Subset: the conditions a row must meet to be used.
-	Subset      []data.Condition
-	Models      Models
-	Tests       Tests
-	Rules       []Rule
-	Report      Report
-	Covariance  fit.Covariance // default observed
+	Subset     []data.Condition
+	Models     Models
+	Tests      Tests
+	Rules      []Rule
+	Report     Report
+	Covariance fit.Covariance // default observed
+	// FewClusters is the few-cluster correction of clustered errors
+	// (default none).
+	FewClusters fit.ClusterCorrection
 	Inference   Inference
 	Assumptions *Assumptions // expected data, for rehearse and power (optional)
 	Dictionary  []Entry      // what each used column holds (optional; when given, every used column)

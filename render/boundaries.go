@@ -50,6 +50,7 @@ func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	}
 	res := np.Result
 	q := res.J - 1
+	_, z = confidenceOf(r, res)
 	width := numfmt.Fixed(z, 3)
 	if res.DF != nil {
 		width = "the t quantile on its Barnard-Rubin degrees of freedom"

@@ -43,6 +43,10 @@ func writeChosen(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		rows = append(rows, row)
 	}
 	stat := "z"
+	if res.RefDF > 0 {
+		stat = "t"
+		d.p("Standard errors from the delete-one-cluster jackknife over %d clusters: each p-value and interval refers to t on G-1 = %s degrees of freedom, not to the normal (few clusters; few_clusters: jackknife).", res.Clusters, numfmt.Num(res.RefDF))
+	}
 	if res.DF != nil {
 		stat = "t"
 		d.p("Pooled over the imputed sets: each p-value and interval refers to t on the estimate's Barnard-Rubin degrees of freedom (column df of the table Pooling of %s), as Rubin's rules prescribe, not to the normal.", or.Chosen.ID)

@@ -74,6 +74,7 @@ func writeHypotheses(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			if h.Test.Pooled != "" {
 				row[2] += " (pooled, " + h.Test.Pooled + ")"
 			}
+			row[2] += fReference(h.Test)
 			row = append(row, numfmt.Stat(h.Test.Chi2), fmt.Sprint(h.Test.DF), numfmt.PValue(h.Test.P))
 		}
 		if adjusted != "" {
@@ -90,7 +91,7 @@ func writeHypotheses(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 
 // writeNewRows summarizes the predictions for the plan's new rows.
 func writeNewRows(d *doc, r *runner.Result, or *runner.OutcomeResult) {
-	level, z := confidence(r)
+	level, z := chosenConfidence(r, or)
 	times := numfmt.Fixed(z, 3)
 	if or.NewRows != nil && or.NewRows.DF != nil {
 		times = "a t quantile on its degrees of freedom (below) times its"
@@ -225,7 +226,7 @@ func outcomeFile(prefix, col string) string {
 // reasons of runner.NewRows.Outside joined by "; ", empty when inside). Every header name is a plain identifier (letters,
 // digits, '_'), usable without quoting.
 func predictionsCSV(r *runner.Result, or *runner.OutcomeResult) []byte {
-	level, z := confidence(r)
+	level, z := chosenConfidence(r, or)
 	lv95 := lvText(level)
 	nr := or.NewRows
 	pr := nr.Pred

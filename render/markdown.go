@@ -74,6 +74,27 @@ func confidence(r *runner.Result) (level, z float64) {
 	return level, distuv.UnitNormal.Quantile(0.5 + level/2)
 }
 
+// confidenceOf returns the plan's confidence level and the quantile of the
+// reference of quantities made from fit res's covariance (predictions):
+// the normal's, or t's on G-1 degrees of freedom under the
+// delete-one-cluster jackknife (fit.Result.ReferenceDF).
+func confidenceOf(r *runner.Result, res *fit.Result) (level, q float64) {
+	level, q = confidence(r)
+	if res != nil {
+		q = res.ReferenceQuantile(0.5+level/2, nil)
+	}
+	return level, q
+}
+
+// chosenConfidence is confidenceOf the outcome's chosen fit (the normal's
+// quantile when none was chosen).
+func chosenConfidence(r *runner.Result, or *runner.OutcomeResult) (level, q float64) {
+	if or.Chosen == nil {
+		return confidence(r)
+	}
+	return confidenceOf(r, or.Chosen.Result)
+}
+
 // writeSummary says up front which model each outcome ended with.
 func writeSummary(d *doc, r *runner.Result) {
 	d.h(2, "Summary")
@@ -86,7 +107,11 @@ func writeSummary(d *doc, r *runner.Result) {
 			}
 		}
 		if g := runner.ClusterCount(or.Data); r.Analysis != nil && r.Analysis.Errors.Covariance == fit.Clustered && g >= 2 && g < fit.FewClusters {
-			item += fmt.Sprintf(" **Its cluster-robust standard errors rest on %d clusters of %s, fewer than %d: they tend to be too small, and joint Wald tests of more than %d restrictions are not computed** (see the notes under The models).", g, mdCode(r.Plan.Data.Cluster), fit.FewClusters, g-1)
+			if r.Analysis.Errors.Jackknife() {
+				item += fmt.Sprintf(" **Its standard errors rest on %d clusters of %s, fewer than %d: they are the delete-one-cluster jackknife, with p-values and intervals from t and F on %d degrees of freedom, and joint Wald tests of more than %d restrictions are not computed** (see the notes under The models).", g, mdCode(r.Plan.Data.Cluster), fit.FewClusters, g-1, g-1)
+			} else {
+				item += fmt.Sprintf(" **Its cluster-robust standard errors rest on %d clusters of %s, fewer than %d: they tend to be too small, and joint Wald tests of more than %d restrictions are not computed** (see the notes under The models).", g, mdCode(r.Plan.Data.Cluster), fit.FewClusters, g-1)
+			}
 		}
 		items = append(items, item)
 	}
@@ -202,8 +227,15 @@ func independenceSentence(r *runner.Result) string {
 		for _, or := range r.Outcomes {
 			g = max(g, runner.ClusterCount(or.Data))
 		}
-		s := fmt.Sprintf("Each model's likelihood treats the observations as independent given the predictors; it assumes %s The standard errors, intervals, Wald tests and the plan's hypotheses allow for correlation within the %d clusters of %s (cluster-robust sandwich), but the likelihood-ratio, score, Brant and Wolfe-Gould tests and AIC and BIC do not: they take every observation as independent, and reject too often when observations of a cluster are alike.", shape, g, mdCode(r.Plan.Data.Cluster))
-		if g < fit.FewClusters {
+		how := "cluster-robust sandwich"
+		if pol.Jackknife() {
+			how = "delete-one-cluster jackknife, with t and F references on G-1 degrees of freedom"
+		}
+		s := fmt.Sprintf("Each model's likelihood treats the observations as independent given the predictors; it assumes %s The standard errors, intervals, Wald tests and the plan's hypotheses allow for correlation within the %d clusters of %s (%s), but the likelihood-ratio, score, Brant and Wolfe-Gould tests and AIC and BIC do not: they take every observation as independent, and reject too often when observations of a cluster are alike.", shape, g, mdCode(r.Plan.Data.Cluster), how)
+		switch {
+		case g < fit.FewClusters && pol.Jackknife():
+			s += fmt.Sprintf(" With %d clusters (fewer than about %d) the cluster-robust sandwich tends to be too small; the jackknife with t and F references, which the plan asks for, keeps the rejection rates of true hypotheses nearer their level, though not exactly at it.", g, fit.FewClusters)
+		case g < fit.FewClusters:
 			s += fmt.Sprintf(" With %d clusters (fewer than about %d) the cluster-robust errors themselves tend to be too small.", g, fit.FewClusters)
 		}
 		return s

@@ -34,6 +34,7 @@ var references = []reference{
 	{"wolfe", "Wolfe, R. & Gould, W. (1998). An approximate likelihood-ratio test for ordinal response models. Stata Technical Bulletin 42:24-27."},
 	{"williams", "Williams, R. (2006). Generalized ordered logit/partial proportional odds models for ordinal dependent variables. The Stata Journal 6:58-82."},
 	{"white", "White, H. (1980). A heteroskedasticity-consistent covariance matrix estimator and a direct test for heteroskedasticity. Econometrica 48:817-838."},
+	{"mnw", "MacKinnon, J.G., Nielsen, M.Ø. & Webb, M.D. (2023). Cluster-robust inference: A guide to empirical practice. Journal of Econometrics 232:272-299."},
 	{"mcfadden", "McFadden, D. (1974). Conditional logit analysis of qualitative choice behavior. In P. Zarembka (ed.), Frontiers in Econometrics, 105-142. Academic Press."},
 	{"nagelkerke", "Nagelkerke, N.J.D. (1991). A note on a general definition of the coefficient of determination. Biometrika 78:691-692."},
 	{"mckelvey", "McKelvey, R.D. & Zavoina, W. (1975). A statistical model for the analysis of ordinal level dependent variables. Journal of Mathematical Sociology 4:103-120."},
@@ -180,8 +181,11 @@ func writeMethods(d *doc, r *runner.Result) {
 				s = append(s, fmt.Sprintf("The %s tests of the parallel-lines assumption the plan asks for were not computed: with sampling weights the fits maximize a pseudo-likelihood, which gives them no chi-square reference.", words.AndList(barred)))
 			}
 		}
-		cov := r.Analysis.Errors.Covariance.Phrase()
-		if strings.Contains(cov, "sandwich") {
+		cov := r.Analysis.Errors.Phrase()
+		switch {
+		case r.Analysis.Errors.Jackknife():
+			cov += " " + c.cite("mnw")
+		case strings.Contains(cov, "sandwich"):
 			cov += " " + c.cite("white")
 		}
 		s = append(s, fmt.Sprintf("Standard errors came from the %s.", cov))

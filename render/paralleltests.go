@@ -84,7 +84,18 @@ func testRow(label string, t fit.Test) []string {
 	if t.Pooled != "" {
 		label += " (pooled, " + t.Pooled + ")"
 	}
+	label += fReference(t)
 	return []string{label, numfmt.Stat(t.Chi2), fmt.Sprint(t.DF), numfmt.PValue(t.P)}
+}
+
+// fReference says, after a test's label, that a Wald statistic W made on a
+// delete-one-cluster jackknife covariance is referred to F ("" for any
+// other test): the tables show W and its df, the p-value is that of F.
+func fReference(t fit.Test) string {
+	if !t.FRef {
+		return ""
+	}
+	return fmt.Sprintf(" (p from F(%d, %s) = W/%d = %s)", t.DF, numfmt.Num(t.DF2), t.DF, numfmt.Stat(t.Chi2/float64(t.DF)))
 }
 
 func testLabel(n string) string {

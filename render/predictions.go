@@ -90,7 +90,7 @@ func writePredictionPanel(d *doc, r *runner.Result, or *runner.OutcomeResult, fi
 	} else {
 		d.p("**Warning:** at %d of these %d values of %s the model predicts a negative probability for some category (its cumulative probabilities cross there). Those rows are not valid probability distributions; read the model with care in that region.", neg, len(xs), mdCode(pf.focus))
 	}
-	level, z := confidence(r)
+	level, z := chosenConfidence(r, or)
 	c, err := predictionChart(d, or, pf, label, level, z)
 	if err != nil {
 		d.p("The chart of these predictions was not drawn: %s.", err)

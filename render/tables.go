@@ -66,7 +66,7 @@ func outcomeFileName(or *runner.OutcomeResult) string {
 // tableFiles returns the CSV tables of one outcome, in a fixed order.
 func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	o := outcomeFileName(or)
-	level, z := confidence(r)
+	level, _ := confidence(r)
 	var out []csvFile
 	add := func(kind, about string, head []string, rows [][]string) {
 		if rows == nil {
@@ -185,6 +185,9 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		head = append(head, "df")
 		about += ", pooled over the imputed sets (z is the estimate over its standard error; p and the intervals from t on df, the Barnard-Rubin degrees of freedom; df empty when infinite)"
 	}
+	if r.Analysis != nil && r.Analysis.Errors.Jackknife() {
+		about += "; standard errors from the delete-one-cluster jackknife, p and the intervals from t on G-1 degrees of freedom (G the clusters)"
+	}
 	add("estimates", about, head, rows)
 
 	// Odds ratios of the chosen model.
@@ -225,6 +228,9 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		}
 		if t.Warning != "" {
 			note += "; " + t.Warning
+		}
+		if t.FRef {
+			note = "Wald statistic on the delete-one-cluster jackknife covariance: p from F(df, " + csvNum(t.DF2) + ") at chi2/df"
 		}
 		rows = append(rows, []string{family, approach, link, scope, t.Name, csvNum(t.Chi2), strconv.Itoa(t.DF), csvNum(t.P), note})
 	}
@@ -324,6 +330,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	if pf, err := newProfile(or, focusName(r), nil); err == nil {
 		xs := pf.grid(chartPoints)
 		if pred, err := pf.predict(or.Chosen.Result, xs); err == nil {
+			_, z := chosenConfidence(r, or)
 			rows = nil
 			for i, x := range xs {
 				for j := 0; j < pred.J; j++ {

@@ -74,7 +74,7 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		}
 	}
 	if a := r.Analysis; a != nil && a.Errors.Covariance.IsSandwich() && !a.Errors.Sampling {
-		d.p("The Wald tests use the standard errors of the %s, which do not rest on the model's variance being right; the likelihood-ratio tests rest on it (and treat the rows as independent), so where the two disagree this may be why.", a.Errors.Covariance.Phrase())
+		d.p("The Wald tests use the standard errors of the %s, which do not rest on the model's variance being right; the likelihood-ratio tests rest on it (and treat the rows as independent), so where the two disagree this may be why.", a.Errors.Phrase())
 	}
 	if pooled {
 		switch {
@@ -114,7 +114,7 @@ func termTestRows(or *runner.OutcomeResult) [][]string {
 				continue
 			}
 			df2, restricted := "", ""
-			if t.Pooled != "" && t.DF2 > 0 {
+			if (t.Pooled != "" || t.FRef) && t.DF2 > 0 {
 				df2 = csvNum(t.DF2)
 			}
 			if t.Name == fit.TestLR.String() {

@@ -77,14 +77,41 @@ type Reading struct {
 type CovariancePolicy struct {
 	Covariance fit.Covariance // what the fits report
 	Sampling   bool           // the weights are sampling weights
+	// Correction is the few-cluster correction of clustered errors (plan
+	// key few_clusters): the delete-one-cluster jackknife with t and F
+	// references on G-1 degrees of freedom, or none.
+	Correction fit.ClusterCorrection
 }
 
 // covariancePolicy resolves the covariance asked for under the weights.
-func covariancePolicy(asked fit.Covariance, sampling bool) CovariancePolicy {
+func covariancePolicy(asked fit.Covariance, sampling bool, correction fit.ClusterCorrection) CovariancePolicy {
 	if sampling && !asked.IsSandwich() {
 		asked = fit.Sandwich
 	}
-	return CovariancePolicy{Covariance: asked, Sampling: sampling}
+	return CovariancePolicy{Covariance: asked, Sampling: sampling, Correction: correction}
+}
+
+// Jackknife reports whether the fits' errors are the delete-one-cluster
+// jackknife (clustered errors with few_clusters: jackknife).
+func (c CovariancePolicy) Jackknife() bool {
+	return c.Covariance == fit.Clustered && c.Correction == fit.Jackknife
+}
+
+// Phrase names the standard errors in running prose (a methods paragraph).
+func (c CovariancePolicy) Phrase() string {
+	if c.Jackknife() {
+		return "delete-one-cluster jackknife, its single estimates referred to t and its joint Wald tests to F on G-1 degrees of freedom (G clusters)"
+	}
+	return c.Covariance.Phrase()
+}
+
+// Describe says in one sentence how the standard errors are computed, and
+// under the jackknife which references the inference takes.
+func (c CovariancePolicy) Describe() string {
+	if c.Jackknife() {
+		return fit.JackknifeDescribe
+	}
+	return c.Covariance.Describe()
 }
 
 // fitOptions are the options of the fits under the policy: a sandwich is
@@ -103,16 +130,26 @@ const SamplingCriteriaNote = "The weights are sampling weights: the log-likeliho
 
 // Notes are the run-level remarks the policy brings to the report.
 func (c CovariancePolicy) Notes() []string {
-	out := []string{fmt.Sprintf("Standard errors from the %s.", c.Covariance.Describe())}
+	out := []string{fmt.Sprintf("Standard errors from the %s.", c.Describe())}
+	if c.Jackknife() {
+		out = append(out, JackknifeWhy)
+	}
 	if c.Sampling {
 		out = append(out, "The weights are sampling weights, rescaled to sum to the rows used (their scale is arbitrary): the fits maximize a pseudo-likelihood, standard errors are sandwich estimates, AIC/BIC are descriptive only, and "+SamplingTestsText()+" (the plan's test rules use Wald tests, and its choice uses TIC).")
 	}
 	return out
 }
 
+// JackknifeWhy is the run note that says why the delete-one-cluster
+// jackknife is used and what its references do.
+const JackknifeWhy = "The plan asks for the few-cluster correction (few_clusters: jackknife): with few clusters the cluster-robust sandwich is too small and its z and chi-square tests reject a true hypothesis too often; the delete-one-cluster jackknife errs less, and referring its tests to t and F on G-1 degrees of freedom (G the clusters of the rows used) rather than the normal and chi-square brings their rejection rates near the nominal level (docs/models.md gives the rates measured). The likelihood-ratio, score, Brant and Wolfe-Gould tests and the information criteria are not corrected."
+
 // Sandwich returns the step that replaces a usable fit's covariance by the
-// sandwich estimate on the data it was fitted to, or nil when the policy
-// uses model-based errors.
+// sandwich estimate on the data it was fitted to (or, under the
+// few-cluster correction, by the delete-one-cluster jackknife, whose
+// refits take the options of the grid's fits), or nil when the policy
+// uses model-based errors: the one place that decides a fit's covariance
+// after its fit.
 func (c CovariancePolicy) Sandwich(ds *data.Dataset, d *fit.Data) func(*fit.Result) error {
 	if !c.Covariance.IsSandwich() {
 		return nil
@@ -122,6 +159,17 @@ func (c CovariancePolicy) Sandwich(ds *data.Dataset, d *fit.Data) func(*fit.Resu
 		clusters = ds.Cluster
 	}
 	cov, sampling := c.Covariance, c.Sampling
+	if c.Jackknife() {
+		opt := c.fitOptions(1)
+		return func(r *fit.Result) error {
+			V, info, err := fit.ClusterJackknife(d, r, clusters, opt)
+			if err != nil {
+				return fmt.Errorf("%s: jackknife covariance: %w", r.Name, err)
+			}
+			r.UseCovariance(V, info)
+			return nil
+		}
+	}
 	return func(r *fit.Result) error {
 		V, info, err := fit.SandwichEstimate(d, r, cov, clusters, sampling)
 		if err != nil {
@@ -173,7 +221,7 @@ func declaredBounds(dict []plan.Entry) map[string]*chained.Bounds {
 // ResolvePlan resolves a validated plan.
 func ResolvePlan(p *plan.Plan) *Analysis {
 	a := &Analysis{Source: p.Path, Plan: true, DataFile: p.Data.Name(), DataPath: p.Data.Path,
-		Errors: covariancePolicy(p.Covariance, p.Data.Sampling()),
+		Errors: covariancePolicy(p.Covariance, p.Data.Sampling(), p.FewClusters),
 		Models: p.Models, Tests: p.Tests, Rules: p.Rules, Inference: p.Inference, Level: p.Report.ConfidenceLevel}
 	if p.Data.Parts != nil {
 		a.DataPaths, a.DataFiles = p.Data.PartPaths, p.Data.PartFiles
@@ -260,7 +308,7 @@ func ResolveFit(s SingleFit) (*Analysis, error) {
 		Weights: s.Weights, Sampling: s.Sampling, Offset: s.Offset, Cluster: s.Cluster, Refuse: s.Refuse, Dialect: s.Dialect,
 		ColumnMissing: s.ColumnMissing}
 	a := &Analysis{Source: s.DataName(), DataFile: s.DataName(), DataPath: s.DataFile,
-		DataPaths: s.Parts, DataFiles: s.Parts, Errors: covariancePolicy(s.Covariance, s.Sampling)}
+		DataPaths: s.Parts, DataFiles: s.Parts, Errors: covariancePolicy(s.Covariance, s.Sampling, fit.NoCorrection)}
 	a.Fit = a.Errors.fitOptions(s.Workers)
 	a.Outcomes = []Reading{{Outcome: s.Outcome, Key: fmt.Sprintf("outcome %q", s.Outcome), CategoriesKey: "--categories",
 		Options: readSources(dopt, spec), Design: spec}}
@@ -381,6 +429,10 @@ func (a *Analysis) FewClusters(r Reading, ds *data.Dataset) string {
 		return ""
 	}
 	col := r.Options.Cluster
+	if a.Errors.Jackknife() {
+		return fmt.Sprintf("%s: column %q holds %d clusters in the %d rows used, fewer than %d: as the plan asks (few_clusters: jackknife), standard errors are the delete-one-cluster jackknife (each model refitted %d times, once without each cluster), single estimates and intervals refer to t on G-1 = %d degrees of freedom and joint Wald tests to F(q, %d), which keep the rejection rates of true hypotheses nearer their level than the cluster-robust sandwich with normal references; a joint Wald test of more than %d restrictions is not computed (the covariance has rank at most G-1)",
+			a.clusterKey(), col, g, ds.N, fit.FewClusters, g, g-1, g-1, g-1)
+	}
 	return fmt.Sprintf("%s: column %q holds %d clusters in the %d rows used, fewer than %d: cluster-robust standard errors tend to be too small, so their z and Wald tests reject a true hypothesis too often, and a joint Wald test of more than G-1 = %d restrictions is not computed (the covariance has rank at most G-1, G the clusters). Where the clusters are a few fixed units, a model with %s as a categorical predictor (one effect per cluster; not for a predictor constant within clusters) and observed or sandwich errors is the safer analysis; otherwise read the clustered p-values and intervals as too small",
 		a.clusterKey(), col, g, ds.N, fit.FewClusters, g-1, col)
 }

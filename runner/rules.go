@@ -437,7 +437,7 @@ func (env *ruleEnv) judgeTest(r plan.Rule, f *FitEntry) (bool, string) {
 		s := fmt.Sprintf("%s test against %s: %s, %s", r.Test.Title(), full.ID, TestStatistic(tt), pText(tt.P, r.Alpha))
 		env.num("chi2 against "+full.ID, tt.Chi2)
 		env.num("df against "+full.ID, float64(tt.DF))
-		if tt.Pooled != "" && tt.DF2 > 0 { // F denominator df of a pooled test (0: infinite)
+		if (tt.Pooled != "" || tt.FRef) && tt.DF2 > 0 { // F denominator df of a pooled or jackknife test (0: infinite)
 			env.num("df2 against "+full.ID, tt.DF2)
 		}
 		env.num("p against "+full.ID, tt.P)
@@ -485,10 +485,10 @@ func pText(p, alpha float64) string {
 // or that it was not fitted.
 func (f *FitEntry) unusable() string {
 	switch {
-	case f != nil && f.Result != nil:
-		return "status " + string(f.Result.Status)
 	case f != nil && f.Err != "":
 		return f.Err
+	case f != nil && f.Result != nil:
+		return "status " + string(f.Result.Status)
 	}
 	return "not fitted"
 }

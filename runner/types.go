@@ -139,8 +139,11 @@ type FitEntry struct {
 	Pooled *impute.Pooled `json:"-"`
 }
 
-// OK reports whether the fit has usable estimates.
-func (f *FitEntry) OK() bool { return f != nil && f.Result != nil && f.Result.OK() }
+// OK reports whether the fit has usable estimates and the covariance the
+// plan asks for: a fit whose step after fitting failed (Err with a Result:
+// a sandwich or jackknife covariance that could not be computed) is not
+// usable, so that no test or interval reads the covariance it kept.
+func (f *FitEntry) OK() bool { return f != nil && f.Result != nil && f.Err == "" && f.Result.OK() }
 
 // likelihoodUsable: the entry's log-likelihood can enter criteria and
 // likelihood ratios (fit.Result.LikelihoodUsable).

@@ -38,6 +38,42 @@ func (c Covariance) IsSandwich() bool {
 	return c == Sandwich || c == SandwichPlain || c == Clustered
 }
 
+// ClusterCorrection is a correction of cluster-robust inference for few
+// clusters (covariance: clustered): none (the CR1 sandwich with normal and
+// chi-square references), or the delete-one-cluster jackknife covariance
+// (ClusterJackknife) with t and F references on G-1 degrees of freedom
+// (Result.RefDF).
+type ClusterCorrection int
+
+// The corrections.
+const (
+	NoCorrection ClusterCorrection = iota // the cluster-robust sandwich, normal and chi-square references
+	Jackknife                             // delete-one-cluster jackknife, t(G-1) and F(q, G-1) references
+)
+
+// ClusterCorrectionWords is the vocabulary of the corrections, in the
+// order of the constants.
+var ClusterCorrectionWords = words.New[ClusterCorrection]("few-cluster correction", "none", "jackknife")
+
+func (c ClusterCorrection) String() string { return ClusterCorrectionWords.Name(c) }
+
+// MarshalText writes the correction's word.
+func (c ClusterCorrection) MarshalText() ([]byte, error) { return ClusterCorrectionWords.Text(c) }
+
+// UnmarshalText reads a correction's word.
+func (c *ClusterCorrection) UnmarshalText(b []byte) (err error) {
+	*c, err = ClusterCorrectionWords.Parse(string(b))
+	return err
+}
+
+// JackknifeDescribe says in one sentence how the delete-one-cluster
+// jackknife covariance is computed and which references its inference
+// takes (the covariance's Describe under the correction).
+const JackknifeDescribe = "delete-one-cluster jackknife: the model refitted without each cluster in turn, from the full fit's estimates, V = (G-1)/G sum_g (b_(g) - b_mean)(b_(g) - b_mean)' with G clusters; single estimates, intervals and p-values refer to t on G-1 degrees of freedom, a joint Wald statistic W of q restrictions as W/q to F(q, G-1)"
+
+// JackknifeLabel names the jackknife covariance for a compact table.
+const JackknifeLabel = "delete-one-cluster jackknife ((G-1)/G sum of squared deviations of the refits; t and F on G-1 df)"
+
 // covarianceText describes each covariance kind at three lengths, in the
 // order of the constants: how it is computed (a report's sentence), a
 // label with its small-sample factor (the text table of ordplan fit), and

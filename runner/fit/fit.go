@@ -179,6 +179,14 @@ type Result struct {
 	// imputed data sets (the Barnard-Rubin degrees of freedom), nil on a
 	// fit of one data set, whose reference is the normal (Inference).
 	DF []float64
+	// RefDF, when above 0, is the degrees of freedom of the reference of
+	// every quantity made from the covariance of a fit of one data set:
+	// G-1 under the delete-one-cluster jackknife (ClusterJackknife, set
+	// by UseCovariance). A single estimate, contrast or marginal effect
+	// then refers to t on RefDF degrees of freedom, a joint Wald statistic
+	// W of q restrictions as W/q to F(q, RefDF) (waldTest). 0: normal and
+	// chi-square.
+	RefDF float64
 
 	Cutpoints []float64   // tau_1..tau_{J-1}
 	Effects   [][]float64 // [m][k]: slope of predictor k in equation m

@@ -7,8 +7,6 @@ import (
 	"strconv"
 	"strings"
 	"unicode"
-
-	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // Hypothesis is a set of linear restrictions R theta = c on a fit's
@@ -253,7 +251,7 @@ func WaldLinear(r *Result, h *Hypothesis) Test {
 	if err != nil {
 		return failedTest(TestWald.String(), "%v", err)
 	}
-	return chi2Test(TestWald.String(), x, len(h.R))
+	return r.waldTest(x, len(h.R))
 }
 
 // Contrast is one restriction r'theta = c of a hypothesis, estimated: the
@@ -306,17 +304,22 @@ func ContrastText(row []float64, c float64, names []string) string {
 }
 
 // Contrasts estimates each restriction of h in fit r (its covariance),
-// with normal intervals at the given level.
+// with intervals at the given level: normal, or t on r's reference
+// degrees of freedom (ReferenceDF; the interval's DF then recorded).
 func Contrasts(r *Result, h *Hypothesis, level float64) []Contrast {
 	if !r.OK() || r.Cov == nil {
 		return nil
 	}
-	z := distuv.UnitNormal.Quantile(0.5 + level/2)
+	df := r.ReferenceDF()
+	z := TQuantile(0.5+level/2, df)
 	out := make([]Contrast, len(h.R))
 	for i, row := range h.R {
 		e := dot(row, r.Estimates) - h.C[i]
 		se := math.Sqrt(quadForm(row, r.Cov))
 		out[i] = Contrast{Text: ContrastText(row, h.C[i], r.ParamNames), Estimate: e, SE: se, Low: e - z*se, High: e + z*se}
+		if !math.IsInf(df, 1) {
+			out[i].DF = &df
+		}
 	}
 	return out
 }

@@ -3,6 +3,7 @@ package fit
 import (
 	"math"
 
+	"gonum.org/v1/gonum/mathext"
 	"gonum.org/v1/gonum/stat/distuv"
 )
 
@@ -29,13 +30,17 @@ func (r *Result) ParamInference(i int, level float64) Inference {
 }
 
 // referenceDF is the degrees of freedom of the reference of the
-// combination g'theta: +Inf (normal) without DF; on a pooled fit the DF of
-// the parameter g names alone, and for a combination of several (the
-// delta-method slope phi_m g_k of a constrained predictor) the smallest
-// DF among them, which errs towards wider intervals.
+// combination g'theta: on a fit of one data set RefDF (G-1 under the
+// delete-one-cluster jackknife) for any g, or +Inf (normal); on a pooled
+// fit the DF of the parameter g names alone, and for a combination of
+// several (the delta-method slope phi_m g_k of a constrained predictor)
+// the smallest DF among them, which errs towards wider intervals.
 func (r *Result) referenceDF(g []float64) float64 {
 	df := math.Inf(1)
 	if r.DF == nil {
+		if r.RefDF > 0 {
+			return r.RefDF
+		}
 		return df
 	}
 	for i, v := range g {
@@ -45,6 +50,11 @@ func (r *Result) referenceDF(g []float64) float64 {
 	}
 	return df
 }
+
+// ReferenceDF is the degrees of freedom of the reference of any quantity
+// made from the covariance of a fit of one data set (a contrast, a
+// marginal effect, a prediction): RefDF, or +Inf for the normal.
+func (r *Result) ReferenceDF() float64 { return r.referenceDF(nil) }
 
 // ReferenceQuantile is the quantile at probability pr of the reference of
 // the combination g'theta (see referenceDF).
@@ -70,4 +80,23 @@ func TQuantile(pr, df float64) float64 {
 		return distuv.UnitNormal.Quantile(pr)
 	}
 	return distuv.StudentsT{Mu: 0, Sigma: 1, Nu: df}.Quantile(pr)
+}
+
+// FSurvival is P(F(k, df2) > f); with df2 = +Inf, P(chi2(k) > k f): the
+// p-value of a Wald test referred to F (pooled over imputed sets, or on a
+// delete-one-cluster jackknife covariance).
+func FSurvival(f float64, k int, df2 float64) float64 {
+	if math.IsNaN(f) {
+		return math.NaN()
+	}
+	if f <= 0 {
+		return 1
+	}
+	if math.IsInf(df2, 1) || df2 > 1e7 {
+		return distuv.ChiSquared{K: float64(k)}.Survival(float64(k) * f)
+	}
+	// The regularized incomplete beta of the upper tail itself, not 1 -
+	// the CDF, which loses the digits of a small p-value.
+	d1 := float64(k)
+	return mathext.RegIncBeta(df2/2, d1/2, df2/(df2+d1*f))
 }

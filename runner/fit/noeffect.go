@@ -136,7 +136,7 @@ func WaldNoEffect(r *Result, ne *NoEffect) Test {
 	if err != nil {
 		return failedTest(TestWald.String(), "%v", err)
 	}
-	return chi2Test(TestWald.String(), x, ne.DF)
+	return r.waldTest(x, ne.DF)
 }
 
 // Offsets are c0 of the linear restrictions R theta = c0 that the delta

@@ -100,6 +100,23 @@ type Test struct {
 	// Warning is what the pooling rule says of a test it computed
 	// (D3: a negative between-imputation part set to 0).
 	Warning string `json:"warning,omitempty"`
+	// FRef: a Wald test on a delete-one-cluster jackknife covariance
+	// (Result.RefDF): Chi2/DF is referred to F(DF, DF2), DF2 = G-1.
+	FRef bool `json:"f_reference,omitempty"`
+}
+
+// waldTest is the test of a Wald statistic x of q restrictions in fit r:
+// chi-square on q degrees of freedom, or, when r's references have finite
+// degrees of freedom (RefDF: G-1 under the delete-one-cluster jackknife),
+// x/q referred to F(q, RefDF). The one reference of every Wald test made
+// from a fit's covariance.
+func (r *Result) waldTest(x float64, q int) Test {
+	if r.RefDF <= 0 || r.DF != nil {
+		return chi2Test(TestWald.String(), x, q)
+	}
+	t := Test{Name: TestWald.String(), OK: true, Chi2: x, DF: q, DF2: r.RefDF, FRef: true}
+	t.P = FSurvival(x/float64(q), q, r.RefDF)
+	return t
 }
 
 // MarshalJSON writes a test that was not computed (OK false, not
@@ -241,7 +258,7 @@ func WaldEqualSlopes(r *Result, predictors []string) Test {
 	if err != nil {
 		return failedTest(TestWald.String(), "%v", err)
 	}
-	return chi2Test(TestWald.String(), x, len(rows))
+	return r.waldTest(x, len(rows))
 }
 
 // waldStat is (R t)' (R V R')^-1 (R t) (clusters as waldDefined's).

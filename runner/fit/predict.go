@@ -3,8 +3,6 @@ package fit
 import (
 	"fmt"
 	"math"
-
-	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // Prediction holds, for new rows, the category probabilities, cumulative
@@ -300,7 +298,8 @@ func (r *Result) marginalEffects(d *Data, binaryOf []bool, level float64) ([]Mar
 		return nil, fmt.Errorf("data have %d predictors, the fit %d", len(d.Predictors), K)
 	}
 	n := d.N()
-	z := distuv.UnitNormal.Quantile(0.5 + level/2)
+	df := r.ReferenceDF()
+	z := TQuantile(0.5+level/2, df)
 	var out []MarginalEffect
 	for k := 0; k < K; k++ {
 		binary := binaryOf[k]
@@ -368,7 +367,7 @@ func (r *Result) marginalEffects(d *Data, binaryOf []bool, level float64) ([]Mar
 			me := MarginalEffect{Predictor: r.Predictors[k], Category: r.Categories[j], Discrete: binary, Effect: ame[j], SE: se}
 			if se > 0 {
 				me.Z = ame[j] / se
-				me.P = TSurvival2(me.Z, math.Inf(1))
+				me.P = TSurvival2(me.Z, df)
 			} else {
 				me.P = 1 // an effect fixed by the model (no sampling variation)
 			}

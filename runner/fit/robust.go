@@ -3,6 +3,7 @@ package fit
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 )
 
@@ -15,6 +16,11 @@ type SandwichInfo struct {
 	// Trace is tr(A^-1 B) without the factor: the penalty of Takeuchi's
 	// criterion (see TIC).
 	Trace float64 `json:"-"`
+	// Correction is the few-cluster correction the covariance makes
+	// (Jackknife: ClusterJackknife), and DF the degrees of freedom of its
+	// t and F references (G-1; 0 for the normal and chi-square).
+	Correction ClusterCorrection `json:"correction,omitempty"`
+	DF         float64           `json:"reference_df,omitempty"`
 }
 
 // rowScores calls fn(i, s) with the score of row i in the parameters
@@ -203,12 +209,14 @@ func sandwichProduct(Ainv, B []float64, P int) []float64 {
 }
 
 // UseCovariance replaces the covariance of a fit (and its standard errors)
-// by the sandwich estimate V, recording its type and clusters.
+// by the sandwich or jackknife estimate V, recording its type, clusters
+// and the degrees of freedom of its references.
 func (r *Result) UseCovariance(V []float64, info SandwichInfo) {
 	P := len(r.Estimates)
 	r.Cov = V
 	r.CovType = info.Type
 	r.Clusters = info.Clusters
+	r.RefDF = info.DF
 	r.StdErrors = make([]float64, P)
 	for i := 0; i < P; i++ {
 		r.StdErrors[i] = math.Sqrt(math.Max(V[i*P+i], 0))
@@ -223,3 +231,137 @@ func (r *Result) UseCovariance(V []float64, info SandwichInfo) {
 // hypothesis too often (docs/models.md, "Sandwich and cluster-robust
 // errors", says why 40).
 const FewClusters = 40
+
+// ClusterJackknife returns the delete-one-cluster jackknife covariance of
+// fit r of data d, whose rows belong to the clusters named (one id per
+// row):
+//
+//	V = (G-1)/G sum_g (b_(g) - b_mean)(b_(g) - b_mean)'
+//
+// with G the clusters, b_(g) the estimates of r's model refitted on the
+// rows outside cluster g and b_mean their mean. Each refit starts from r's
+// estimates (opt as r's fit had them; no random starts) and is an exact
+// maximum on its rows, whatever the model's comparison, link and effect
+// structure. info.DF = G-1 is the degrees of freedom of the t and F
+// references of the inference made from V (Result.RefDF). A refit that
+// cannot be made or reaches no usable maximum (a category or a
+// predictor's spread missing without the cluster, separation, no
+// convergence) refuses the covariance, naming the cluster and the reason:
+// no estimate stands in for it.
+func ClusterJackknife(d *Data, r *Result, clusters []string, opt Options) ([]float64, SandwichInfo, error) {
+	info := SandwichInfo{Type: Clustered, Correction: Jackknife}
+	if !r.OK() {
+		return nil, info, fmt.Errorf("%s has no usable estimates", r.Name)
+	}
+	if len(clusters) != d.N() {
+		return nil, info, fmt.Errorf("%d cluster ids for %d rows", len(clusters), d.N())
+	}
+	if d.ind != nil {
+		return nil, info, fmt.Errorf("the jackknife covariance is not defined for a fit with group indicators")
+	}
+	rows := map[string][]int{}
+	for i, c := range clusters {
+		rows[c] = append(rows[c], i)
+	}
+	keys := make([]string, 0, len(rows))
+	for k := range rows {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	G := len(keys)
+	info.Clusters = G
+	if G < 2 {
+		return nil, info, fmt.Errorf("the jackknife covariance needs at least 2 clusters, got %d", G)
+	}
+	opt.Start = r.Estimates
+	opt.RandomStarts = -1
+	opt.Covariance = Observed
+	opt.Settle = nil
+	P := len(r.Estimates)
+	est := make([][]float64, G)
+	for g, k := range keys {
+		sub := d.without(rows[k])
+		why := func(format string, a ...any) error {
+			return fmt.Errorf("without cluster %q (%d of %d rows), the refit of %s %s: the delete-one-cluster jackknife needs every refit at a maximum, so it is not computed",
+				k, len(rows[k]), d.N(), r.Model.Name(), fmt.Sprintf(format, a...))
+		}
+		if c := sub.emptyCategory(); c >= 0 {
+			return nil, info, why("has no row in category %q", d.categories()[c])
+		}
+		res, err := Fit(sub, r.Model, opt)
+		if err != nil {
+			return nil, info, why("cannot be made (%v)", err)
+		}
+		if !res.OK() || !res.Converged || len(res.Estimates) != P {
+			msg := string(res.Status)
+			if res.Message != "" {
+				msg += ": " + res.Message
+			}
+			return nil, info, why("has no usable maximum (%s)", msg)
+		}
+		est[g] = res.Estimates
+	}
+	mean := make([]float64, P)
+	for _, b := range est {
+		for j, v := range b {
+			mean[j] += v / float64(G)
+		}
+	}
+	V := make([]float64, P*P)
+	dev := make([]float64, P)
+	for _, b := range est {
+		for j := range b {
+			dev[j] = b[j] - mean[j]
+		}
+		addOuter(V, dev, 1)
+	}
+	info.Factor = float64(G-1) / float64(G)
+	for i := range V {
+		V[i] *= info.Factor
+	}
+	info.DF = float64(G - 1)
+	info.Formula = "(G-1)/G sum over clusters g of (b_(g) - b_mean)(b_(g) - b_mean)', b_(g) the estimates refitted without cluster g"
+	return V, info, nil
+}
+
+// without is d less the rows listed (increasing).
+func (d *Data) without(out []int) *Data {
+	K := d.width()
+	n := d.N() - len(out)
+	s := &Data{J: d.J, Predictors: d.Predictors, Categories: d.Categories,
+		Y: make([]int, 0, n), X: make([]float64, 0, n*K)}
+	if d.Weights != nil {
+		s.Weights = make([]float64, 0, n)
+	}
+	if d.Offset != nil {
+		s.Offset = make([]float64, 0, n)
+	}
+	next := 0
+	for i := range d.Y {
+		if next < len(out) && out[next] == i {
+			next++
+			continue
+		}
+		s.Y = append(s.Y, d.Y[i])
+		s.X = append(s.X, d.X[i*K:(i+1)*K]...)
+		if d.Weights != nil {
+			s.Weights = append(s.Weights, d.Weights[i])
+		}
+		if d.Offset != nil {
+			s.Offset = append(s.Offset, d.Offset[i])
+		}
+	}
+	return s
+}
+
+// emptyCategory is the first category no row of d has with a positive
+// weight, or -1.
+func (d *Data) emptyCategory() int {
+	seen := make([]bool, d.J)
+	for i, y := range d.Y {
+		if y >= 0 && y < d.J && d.weight(i) > 0 {
+			seen[y] = true
+		}
+	}
+	return slices.Index(seen, false)
+}

@@ -3,8 +3,6 @@ package fit
 import (
 	"fmt"
 	"math"
-
-	"gonum.org/v1/gonum/stat/distuv"
 )
 
 // AverageDifference is the weighted average over rows of
@@ -154,7 +152,8 @@ func (r *Result) effectRows(name string, discrete bool, eff, jac []float64, leve
 	if level <= 0 || level >= 1 {
 		level = 0.95
 	}
-	z := distuv.UnitNormal.Quantile(0.5 + level/2)
+	df := r.ReferenceDF()
+	z := TQuantile(0.5+level/2, df)
 	P := len(r.Estimates)
 	out := make([]MarginalEffect, len(eff))
 	for j := range eff {
@@ -162,7 +161,7 @@ func (r *Result) effectRows(name string, discrete bool, eff, jac []float64, leve
 		me := MarginalEffect{Predictor: name, Category: r.Categories[j], Discrete: discrete, Effect: eff[j], SE: se}
 		if se > 0 {
 			me.Z = eff[j] / se
-			me.P = TSurvival2(me.Z, math.Inf(1))
+			me.P = TSurvival2(me.Z, df)
 		} else {
 			me.P = 1
 		}

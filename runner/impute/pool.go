@@ -233,7 +233,7 @@ func (t FTest) Referred(k int) FTest {
 	}
 	t.F = t.F * float64(t.DF1) / float64(k)
 	t.DF1, t.DF2 = k, pooledTestDF(k, t.Imputed, t.RIV)
-	t.P = fSurvival(t.F, k, t.DF2)
+	t.P = fit.FSurvival(t.F, k, t.DF2)
 	return t
 }
 
@@ -303,7 +303,7 @@ func D1(p *Pooled, C []float64, c0 []float64) (FTest, error) {
 		// t, on the Barnard-Rubin degrees of freedom its interval uses.
 		df2 = BarnardRubinDF(p.M, r/(1+r), p.DFComplete)
 	}
-	return FTest{Method: "D1", F: f, DF1: k, DF2: df2, P: fSurvival(f, k, df2), RIV: r, Imputed: p.M}, nil
+	return FTest{Method: "D1", F: f, DF1: k, DF2: df2, P: fit.FSurvival(f, k, df2), RIV: r, Imputed: p.M}, nil
 }
 
 // D3 pools likelihood-ratio tests. own[i] is the
@@ -344,7 +344,7 @@ func D3(own, atPooled []float64, k int) (FTest, error) {
 	}
 	f := mp / (fk * (1 + r))
 	df2 := pooledTestDF(k, m, r)
-	return FTest{Method: "D3", F: f, DF1: k, DF2: df2, P: fSurvival(f, k, df2), RIV: r, Imputed: m, Warnings: warn}, nil
+	return FTest{Method: "D3", F: f, DF1: k, DF2: df2, P: fit.FSurvival(f, k, df2), RIV: r, Imputed: m, Warnings: warn}, nil
 }
 
 // D2 pools chi-square statistics on k degrees of freedom, one per imputed
@@ -391,5 +391,5 @@ func D2(chi2 []float64, k int) (FTest, error) {
 		a := 1 + 1/r
 		df2 = math.Pow(fk, -3/fm) * (fm - 1) * a * a
 	}
-	return FTest{Method: "D2", F: f, DF1: k, DF2: df2, P: fSurvival(f, k, df2), RIV: r, Imputed: m, Warnings: warn}, nil
+	return FTest{Method: "D2", F: f, DF1: k, DF2: df2, P: fit.FSurvival(f, k, df2), RIV: r, Imputed: m, Warnings: warn}, nil
 }

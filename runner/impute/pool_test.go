@@ -397,7 +397,7 @@ func TestPooledLinearIsPoolScalar(t *testing.T) {
 // FALSE) = 0.68651861283640314.
 func TestFSurvivalSmallP(t *testing.T) {
 	for _, c := range []struct{ f, want float64 }{{200, 4.4477194934823165e-15}, {0.5, 0.68651861283640314}} {
-		if got := fSurvival(c.f, 3, 20); math.Abs(got-c.want) > 1e-12*c.want {
+		if got := fit.FSurvival(c.f, 3, 20); math.Abs(got-c.want) > 1e-12*c.want {
 			t.Errorf("P(F(3, 20) > %g) = %.17g, R gives %.17g", c.f, got, c.want)
 		}
 	}
