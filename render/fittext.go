@@ -8,8 +8,6 @@ import (
 	"strings"
 	"text/tabwriter"
 
-	"gonum.org/v1/gonum/stat/distuv"
-
 	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/fit"
@@ -68,6 +66,9 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 	}
 	if r.OK() {
 		cov := r.CovType.Label()
+		if r.RefDF > 0 {
+			cov = fit.JackknifeLabel
+		}
 		if r.CovType == fit.Clustered {
 			cov += fmt.Sprintf(", %d clusters", r.Clusters)
 		}
@@ -80,15 +81,16 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 		_, err := fmt.Fprintf(w, "\n%s\n", r.Message)
 		return err
 	}
-	z := distuv.UnitNormal.Quantile(0.5 + level/2)
 	fmt.Fprintln(w)
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintf(tw, "parameter\testimate\tstd. error\tz\tp\t%g%% interval\t\n", 100*level)
+	stat := "z"
+	if r.RefDF > 0 {
+		stat = fmt.Sprintf("t(%s)", numfmt.Num(r.RefDF))
+	}
+	fmt.Fprintf(tw, "parameter\testimate\tstd. error\t%s\tp\t%g%% interval\t\n", stat, 100*level)
 	for i, n := range r.ParamNames {
-		est, se := r.Estimates[i], r.StdErrors[i]
-		zz := est / se
-		p := fit.TSurvival2(zz, math.Inf(1))
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t[%s, %s]\t\n", ParamLabel(r, n), numfmt.Num(est), numfmt.Num(se), numfmt.Fixed(zz, 2), numfmt.PValue(p), numfmt.Num(est-z*se), numfmt.Num(est+z*se))
+		inf := r.ParamInference(i, level)
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t[%s, %s]\t\n", ParamLabel(r, n), numfmt.Num(r.Estimates[i]), numfmt.Num(r.StdErrors[i]), numfmt.Fixed(inf.Stat, 2), numfmt.PValue(inf.P), numfmt.Num(inf.Low), numfmt.Num(inf.High))
 	}
 	if err := tw.Flush(); err != nil {
 		return err

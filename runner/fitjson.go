@@ -63,6 +63,11 @@ type CovarianceJSON struct {
 	Matrix     [][]*float64   `json:"matrix"` // null where not defined
 	// Clusters: the number of clusters of a cluster-robust covariance.
 	Clusters int `json:"clusters,omitempty"`
+	// Correction: the few-cluster correction (jackknife: the
+	// delete-one-cluster jackknife), and ReferenceDF the degrees of freedom
+	// of its t and F references (G-1); absent without one.
+	Correction  fit.ClusterCorrection `json:"correction,omitempty"`
+	ReferenceDF float64               `json:"reference_df,omitempty"`
 }
 
 // StartJSON is one start of a constrained fit's search.
@@ -128,7 +133,10 @@ func Record(r *fit.Result) FitRecord {
 		rec.StdErrors[n] = r.StdErrors[i]
 	}
 	P := len(r.ParamNames)
-	cov := &CovarianceJSON{Kind: r.CovType, Parameters: r.ParamNames, Matrix: make([][]*float64, P), Clusters: r.Clusters}
+	cov := &CovarianceJSON{Kind: r.CovType, Parameters: r.ParamNames, Matrix: make([][]*float64, P), Clusters: r.Clusters, ReferenceDF: r.RefDF}
+	if r.RefDF > 0 {
+		cov.Correction = fit.Jackknife
+	}
 	for i := range cov.Matrix {
 		cov.Matrix[i] = make([]*float64, P)
 		for j := range cov.Matrix[i] {

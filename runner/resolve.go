@@ -308,7 +308,7 @@ func ResolveFit(s SingleFit) (*Analysis, error) {
 		Weights: s.Weights, Sampling: s.Sampling, Offset: s.Offset, Cluster: s.Cluster, Refuse: s.Refuse, Dialect: s.Dialect,
 		ColumnMissing: s.ColumnMissing}
 	a := &Analysis{Source: s.DataName(), DataFile: s.DataName(), DataPath: s.DataFile,
-		DataPaths: s.Parts, DataFiles: s.Parts, Errors: covariancePolicy(s.Covariance, s.Sampling, fit.NoCorrection)}
+		DataPaths: s.Parts, DataFiles: s.Parts, Errors: covariancePolicy(s.Covariance, s.Sampling, s.Correction)}
 	a.Fit = a.Errors.fitOptions(s.Workers)
 	a.Outcomes = []Reading{{Outcome: s.Outcome, Key: fmt.Sprintf("outcome %q", s.Outcome), CategoriesKey: "--categories",
 		Options: readSources(dopt, spec), Design: spec}}
@@ -406,6 +406,15 @@ func (a *Analysis) clusterKey() string {
 	return "--cluster"
 }
 
+// correctionKey names the few-cluster correction's setting: the plan key
+// or the flag, with its word.
+func (a *Analysis) correctionKey() string {
+	if a.Plan {
+		return "few_clusters: " + a.Errors.Correction.String()
+	}
+	return "--few-clusters " + a.Errors.Correction.String()
+}
+
 // ClusterCount is the number of distinct cluster ids of the rows used (0
 // without a cluster column).
 func ClusterCount(ds *data.Dataset) int {
@@ -430,8 +439,8 @@ func (a *Analysis) FewClusters(r Reading, ds *data.Dataset) string {
 	}
 	col := r.Options.Cluster
 	if a.Errors.Jackknife() {
-		return fmt.Sprintf("%s: column %q holds %d clusters in the %d rows used, fewer than %d: as the plan asks (few_clusters: jackknife), standard errors are the delete-one-cluster jackknife (each model refitted %d times, once without each cluster), single estimates and intervals refer to t on G-1 = %d degrees of freedom and joint Wald tests to F(q, %d), which keep the rejection rates of true hypotheses nearer their level than the cluster-robust sandwich with normal references; a joint Wald test of more than %d restrictions is not computed (the covariance has rank at most G-1)",
-			a.clusterKey(), col, g, ds.N, fit.FewClusters, g, g-1, g-1, g-1)
+		return fmt.Sprintf("%s: column %q holds %d clusters in the %d rows used, fewer than %d: as asked (%s), standard errors are the delete-one-cluster jackknife (each model refitted %d times, once without each cluster), single estimates and intervals refer to t on G-1 = %d degrees of freedom and joint Wald tests to F(q, %d), which keep the rejection rates of true hypotheses nearer their level than the cluster-robust sandwich with normal references; a joint Wald test of more than %d restrictions is not computed (the covariance has rank at most G-1)",
+			a.clusterKey(), col, g, ds.N, fit.FewClusters, a.correctionKey(), g, g-1, g-1, g-1)
 	}
 	return fmt.Sprintf("%s: column %q holds %d clusters in the %d rows used, fewer than %d: cluster-robust standard errors tend to be too small, so their z and Wald tests reject a true hypothesis too often, and a joint Wald test of more than G-1 = %d restrictions is not computed (the covariance has rank at most G-1, G the clusters). Where the clusters are a few fixed units, a model with %s as a categorical predictor (one effect per cluster; not for a predictor constant within clusters) and observed or sandwich errors is the safer analysis; otherwise read the clustered p-values and intervals as too small",
 		a.clusterKey(), col, g, ds.N, fit.FewClusters, g-1, col)

@@ -32,7 +32,10 @@ type SingleFit struct {
 	// as a plan's dictionary.COLUMN.missing.
 	ColumnMissing map[string][]string
 	Covariance    fit.Covariance
-	Workers       int
+	// Correction is the few-cluster correction of clustered errors
+	// (--few-clusters; the plan's few_clusters).
+	Correction fit.ClusterCorrection
+	Workers    int
 }
 
 // DataName names the data in messages and summaries: the file, or the

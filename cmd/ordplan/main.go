@@ -142,6 +142,7 @@ type fitFlags struct {
 	approach                                             fit.Comparison
 	link                                                 fit.Link
 	covariance                                           fit.Covariance
+	fewClusters                                          fit.ClusterCorrection
 	queue                                                *queueFlags
 }
 
@@ -254,6 +255,7 @@ func defineFitFlags(fs *flag.FlagSet) *fitFlags {
 	fs.TextVar(&f.approach, "approach", fit.Cumulative, "how categories are compared: "+fit.ComparisonWords.OrList())
 	fs.TextVar(&f.link, "link", fit.Logit, "link: "+fit.LinkWords.OrList())
 	fs.TextVar(&f.covariance, "covariance", fit.Observed, "standard errors: observed (information), expected (information), sandwich (HC1), sandwich_plain (HC0) or clustered (CR1)")
+	fs.TextVar(&f.fewClusters, "few-clusters", fit.NoCorrection, "with --covariance clustered, a correction for few clusters: none, or jackknife (the delete-one-cluster jackknife covariance, the model refitted without each cluster in turn, with t and F references on G-1 degrees of freedom)")
 	return f
 }
 
@@ -303,6 +305,9 @@ func (f *fitFlags) usageProblem(fs *flag.FlagSet) string {
 	}
 	if *f.headerRow < 1 {
 		return fmt.Sprintf("--header-row must be a sheet row number, 1 or more (got %d)", *f.headerRow)
+	}
+	if f.fewClusters != fit.NoCorrection && f.covariance != fit.Clustered {
+		return fmt.Sprintf("--few-clusters %s corrects clustered errors, but --covariance is %s: give --covariance clustered --cluster COL, or leave --few-clusters out", f.fewClusters, f.covariance)
 	}
 	switch parts, url := checkedList(*f.parts), *f.queue.url; {
 	case len(parts) > 0 && *f.dataFile != "":
@@ -354,7 +359,7 @@ func (f *fitFlags) single() (runner.SingleFit, error) {
 	s := runner.SingleFit{DataFile: *f.dataFile, Parts: parts, Outcome: *f.outcome, Categories: checkedList(*f.categories),
 		Predictors: termNames, Design: &dspec, Approach: f.approach, Backward: *f.direction == "backward",
 		Link: f.link, Nonparallel: checkedList(*f.nonparallel), Weights: *f.weights, Offset: *f.offset,
-		Refuse: *f.missing == "refuse", Covariance: f.covariance, Cluster: *f.cluster, Sampling: *f.weightKind == "sampling"}
+		Refuse: *f.missing == "refuse", Covariance: f.covariance, Correction: f.fewClusters, Cluster: *f.cluster, Sampling: *f.weightKind == "sampling"}
 	s.Dialect, _ = data.ParseDialect(*f.delimiter, *f.decimal) // checked in usageProblem
 	s.ColumnMissing, _ = parseMissingCodes(*f.missingCodes)    // checked in usageProblem
 	s.Dialect.Sheet, s.Dialect.HeaderRow = *f.sheet, *f.headerRow

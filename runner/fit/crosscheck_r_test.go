@@ -427,6 +427,10 @@ func testRTwoCategories(t *testing.T) {
 				a.sandwiches(label, s.d, r, s.clusters, s.sampling, vals, prefix)
 				if s.name == "infert" {
 					a.fewClusters(label, s.d, r, ids(inf.Col(t, "education")), vals, prefix)
+					a.jackknife(label+" clustered by education", s.d, r, ids(inf.Col(t, "education")), s.sampling, vals, prefix+".jack_education")
+					a.jackknife(label+" clustered by stratum mod 10", s.d, r, ids(inf.Col(t, "set10")), s.sampling, vals, prefix+".jack_set10")
+				} else {
+					a.jackknife(label+" clustered by g", s.d, r, s.clusters, s.sampling, vals, prefix+".jack_g")
 				}
 			}
 		}
@@ -463,6 +467,41 @@ func (a *agreement) fewClusters(label string, d *fit.Data, r *fit.Result, cluste
 	if !two.OK || three.OK || !strings.Contains(three.Reason, "3 restrictions need at least 4 clusters") {
 		t.Errorf("%s: Wald tests of 2 restrictions %+v, of 3 %+v", label, two, three)
 	}
+}
+
+// jackknife checks the delete-one-cluster jackknife covariance of fit r
+// (each refit from r's estimates) against R's: glm refitted without each
+// cluster and the same formula by hand (jackknife in common.R, under
+// prefix); then, on that covariance, each estimate's two-sided p-value on
+// t(G-1) against R's pt, and the Wald test of the first two slopes = 0
+// (parameters 2 and 3), W and the p-value of W/2 on F(2, G-1), against
+// R's pf.
+func (a *agreement) jackknife(label string, d *fit.Data, r *fit.Result, clusters []string, sampling bool, vals rscript.Values, prefix string) {
+	t := a.t
+	t.Helper()
+	V, info, err := fit.ClusterJackknife(d, r, clusters, fit.Options{Sampling: sampling})
+	if err != nil {
+		t.Fatalf("%s: %v", label, err)
+	}
+	a.cov(label+" jackknife (glm refits)", r.ParamNames, V, vals.Get(t, prefix))
+	if info.DF != float64(info.Clusters-1) || info.Correction != fit.Jackknife {
+		t.Errorf("%s: %d clusters, reference df %g, correction %s", label, info.Clusters, info.DF, info.Correction)
+	}
+	rc := *r
+	rc.UseCovariance(V, info)
+	for i, want := range vals.Get(t, prefix+"_p") {
+		a.stat(fmt.Sprintf("%s %s: p-value on t(%g) (R's pt)", label, r.ParamNames[i], info.DF), rc.ParamInference(i, 0.95).P, want)
+	}
+	P := len(r.Estimates)
+	rows := [][]float64{make([]float64, P), make([]float64, P)}
+	rows[0][1], rows[1][2] = 1, 1
+	w := fit.WaldLinear(&rc, &fit.Hypothesis{R: rows, C: []float64{0, 0}})
+	want := vals.Get(t, prefix+"_wald")
+	if !w.OK || !w.FRef || w.DF != 2 || w.DF2 != info.DF {
+		t.Fatalf("%s: Wald test %+v", label, w)
+	}
+	a.stat(label+" jackknife Wald statistic", w.Chi2, want[0])
+	a.stat(fmt.Sprintf("%s jackknife Wald p-value on F(2, %g) (R's pf)", label, info.DF), w.P, want[1])
 }
 
 // testRFarFromZero: a predictor near 1e6 with a spread of about 1 (the

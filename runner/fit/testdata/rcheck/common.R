@@ -141,6 +141,33 @@ sandwich <- function(b, sampling = FALSE, cluster = NULL, plain = FALSE) {
   b$D * t(b$D * V)
 }
 
+# jackknife: the delete-one-cluster jackknife covariance of binfit's theta,
+# each cluster left out in turn and the binary model refitted by glm
+# (binfit) on the other rows: V = (G-1)/G sum_g (t_g - t_mean)(t_g - t_mean)'.
+jackknife <- function(Z, sgn, e, w, link, cluster) {
+  ids <- sort(unique(cluster))
+  Th <- t(sapply(ids, function(g) {
+    k <- cluster != g
+    binfit(Z[k, , drop = FALSE], sgn, e[k], w[k], link)$theta
+  }))
+  G <- length(ids)
+  Dv <- sweep(Th, 2, colMeans(Th))
+  (G - 1) / G * crossprod(Dv)
+}
+
+# printjackknife prints the jackknife covariance V of theta from G clusters,
+# the two-sided p-values of each theta_j / sqrt(V_jj) on t(G-1), and the
+# Wald statistic W of theta_j = 0 for the parameters in `joint` with the
+# p-value of W/q on F(q, G-1).
+printjackknife <- function(prefix, theta, V, G, joint) {
+  out(prefix, V)
+  out(paste0(prefix, "_p"), 2 * pt(-abs(theta / sqrt(diag(V))), G - 1))
+  b <- theta[joint]
+  W <- drop(t(b) %*% solve(V[joint, joint], b))
+  q <- length(joint)
+  out(paste0(prefix, "_wald"), c(W, pf(W / q, q, G - 1, lower.tail = FALSE)))
+}
+
 # printfit prints a binary fit under prefix: theta, the log-likelihoods, the
 # standard errors from glm and from the observed information.
 printfit <- function(prefix, b) {

@@ -7,14 +7,19 @@
 #    clusters: the matched sets (stratum); also education (3 levels) as
 #    3 clusters, whose cluster-robust covariance has rank G-1 = 2: its
 #    numerical rank is the number of eigenvalues of the covariance scaled
-#    to unit diagonal (cov2cor) above 1e-10 of the largest. Exported to
-#    infert.csv.
+#    to unit diagonal (cov2cor) above 1e-10 of the largest. The
+#    delete-one-cluster jackknife covariance (jackknife in common.R: glm
+#    refitted without each cluster) with the 3 education groups and with
+#    the matched sets dealt into 10 clusters by stratum modulo 10 (set10),
+#    with p-values on t(G-1) and a Wald test of age = parity = 0 on
+#    F(2, G-1). Exported to infert.csv.
 # 2. sim2.csv, written by the Go test (seeded simulation): outcome y (1, 2),
 #    predictors x1, x2, sampling weights sw, clusters g.
 
 inf <- data.frame(y = infert$case + 1, age = infert$age, parity = infert$parity,
   induced = infert$induced, spontaneous = infert$spontaneous,
-  stratum = infert$stratum, education = as.integer(infert$education))
+  stratum = infert$stratum, education = as.integer(infert$education),
+  set10 = infert$stratum %% 10)
 write.csv(inf, "infert.csv", row.names = FALSE)
 Z <- cbind(1, as.matrix(inf[, c("age", "parity", "induced", "spontaneous")]))
 sgn <- c(1, -1, -1, -1, -1)
@@ -27,6 +32,10 @@ for (link in links) {
   out(paste0("infert.", link, ".clustered3"), V3)
   ev <- eigen(cov2cor(V3), symmetric = TRUE, only.values = TRUE)$values
   out(paste0("infert.", link, ".clustered3_rank"), sum(ev > 1e-10 * max(ev)))
+  for (cl in c("education", "set10")) {
+    V <- jackknife(Z, sgn, as.numeric(inf$y == 1), rep(1, nrow(inf)), link, inf[[cl]])
+    printjackknife(paste0("infert.", link, ".jack_", cl), b$theta, V, length(unique(inf[[cl]])), 2:3)
+  }
 }
 
 sim <- read.csv("sim2.csv")
@@ -36,4 +45,6 @@ for (link in links) {
   b <- binfit(Z, sgn, as.numeric(sim$y == 1), sim$sw, link)
   printfit(paste0("sim2.", link), b)
   printsandwiches(paste0("sim2.", link), b, TRUE, sim$g)
+  V <- jackknife(Z, sgn, as.numeric(sim$y == 1), sim$sw, link, sim$g)
+  printjackknife(paste0("sim2.", link, ".jack_g"), b$theta, V, length(unique(sim$g)), 2:3)
 }
