@@ -138,9 +138,9 @@ func (d *decoder) checkDataOptions(p *Plan) {
 	if p.FewClusters != fit.NoCorrection && d.clean("covariance") {
 		switch {
 		case p.Covariance != fit.Clustered:
-			d.errAt("few_clusters", "few_clusters: %s corrects clustered errors, but covariance is %s: set covariance: clustered with data.cluster naming the cluster column, or remove few_clusters", p.FewClusters, quote(p.Covariance.String()))
+			d.errAt("few_clusters", "%s corrects clustered errors, but covariance is %s: set covariance: clustered with data.cluster naming the cluster column, or remove few_clusters", p.FewClusters, quote(p.Covariance.String()))
 		case p.Data.Imputed != nil || p.Data.Imputes():
-			d.errAt("few_clusters", "few_clusters: %s is not available with imputed data (%s): Rubin's rules would need the jackknife's G-1 degrees of freedom carried into the pooling, which the program does not do; remove few_clusters (the clustered errors are then not corrected for few clusters) or analyse complete data", p.FewClusters, imputedKey(p))
+			d.errAt("few_clusters", "%s is not available with imputed data (%s): Rubin's rules would need the jackknife's G-1 degrees of freedom carried into the pooling, which the program does not do; remove few_clusters (the clustered errors are then not corrected for few clusters) or analyse complete data", p.FewClusters, imputedKey(p))
 		}
 	}
 }

@@ -11,7 +11,11 @@ func writeDecisionLog(d *doc, or *runner.OutcomeResult) {
 	d.h(3, "Decision log")
 	for _, f := range or.Fits {
 		if !f.Auxiliary && f.Err != "" {
-			d.p("- %s could not be fitted: %s", f.ID, f.Err)
+			why := f.Rejected // "could not be fitted: ..." or "fitted, but its covariance ..." (applyRules)
+			if why == "" {
+				why = "could not be fitted: " + f.Err
+			}
+			d.p("- %s %s", f.ID, why)
 		}
 	}
 	for i, ro := range or.Rules {

@@ -77,6 +77,9 @@ func (env *ruleEnv) apply() {
 		if f.Err != "" || f.Result == nil {
 			f.Verdict = "rejected"
 			f.Rejected = "could not be fitted: " + f.Err
+			if f.Result != nil {
+				f.Rejected = "fitted, but its covariance could not be computed: " + f.Err
+			}
 			continue
 		}
 		alive = append(alive, f)
@@ -414,8 +417,14 @@ func (env *ruleEnv) judgeTest(r plan.Rule, f *FitEntry) (bool, string) {
 		full := env.or.Cell(f.Approach, t, f.Link)
 		// The score and Brant tests need only the tested model's fit (and
 		// the other model's structure): they are made although the less
-		// constrained model has no usable fit.
-		if full == nil || !full.likelihoodUsable() && r.Test.NeedsFullFit() {
+		// constrained model has no usable fit. The Wald test reads its
+		// covariance too, which a fit whose sandwich or jackknife could
+		// not be computed lacks (FitEntry.OK).
+		usable := full.likelihoodUsable()
+		if r.Test == fit.TestWald {
+			usable = full.OK()
+		}
+		if full == nil || !usable && r.Test.NeedsFullFit() {
 			parts = append(parts, fmt.Sprintf("not tested against %s: it has no usable fit (%s)", full.idOr(fit.ModelID(f.Result.Model.ComparisonName(), t.String(), f.Link)), full.unusable()))
 			continue
 		}

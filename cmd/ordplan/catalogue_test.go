@@ -83,6 +83,32 @@ func clusterData(t *testing.T, dir, id string) {
 	}
 }
 
+// refitData writes jk.csv beside the plan: d.csv with a column site
+// dealing the rows into clusters k, m and n, except that every row with b
+// = 1 in category 1 is in cluster p: without p, b = 1 never meets
+// category 1, so models whose slope of b at the first boundary is free
+// have no finite maximum there.
+func refitData(t *testing.T, dir, id string) {
+	t.Helper()
+	src, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(src)), "\n")
+	var b strings.Builder
+	b.WriteString(lines[0] + ",site\n")
+	for i, l := range lines[1:] {
+		site := string("kmn"[i%3])
+		if f := strings.Split(l, ","); f[0] == "1" && f[2] == "1" {
+			site = "p"
+		}
+		fmt.Fprintf(&b, "%s,%s\n", l, site)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "jk.csv"), []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+}
+
 // edit makes replacements (old, new, old, new, ...) in goodPlan.
 func edit(pairs ...string) string {
 	s := goodPlan
@@ -682,7 +708,7 @@ func catalogue(dir string) (items []badInput) {
 	items = []badInput{
 		// Plans.
 		{id: "P1", name: "unknown key", args: []string{"check"}, plan: edit("predictors:", "predictorz: [a]\npredictors:"), code: 1,
-			want: []string{`P1.yaml:6:1: predictorz: unknown key "predictorz" (allowed: version, title, seed, data, outcomes, subset, categorical, predictors, models, tests, rules, covariance, report, inference`}},
+			want: []string{`P1.yaml:6:1: predictorz: unknown key "predictorz" (allowed: version, title, seed, data, outcomes, subset, categorical, predictors, models, tests, rules, covariance, few_clusters, report, inference`}},
 		{id: "P2", name: "unknown nested key", args: []string{"check"}, plan: edit("  file: d.csv\n", "  file: d.csv\n  colour: red\n"), code: 1,
 			want: []string{`P2.yaml:4:3: data.colour: unknown key "colour" (allowed: file, parts, missing, missing_values, delimiter, decimal, sheet, header_row, weights, weight_kind, offset, cluster, imputed, imputation)`}},
 		{id: "P3", name: "wrong type: a number for a list", args: []string{"check"}, plan: edit("predictors: [a, b]", "predictors: 3"), code: 1,
@@ -1409,6 +1435,29 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("report.md lacks the Wald test of a")
 				}
 			}},
+		{id: "W11", name: "few_clusters without clustered errors", args: []string{"check"},
+			plan: edit("rules:", "few_clusters: jackknife\nrules:"), code: 1,
+			want: []string{`W11.yaml:11:15: few_clusters: jackknife corrects clustered errors, but covariance is "observed": set covariance: clustered with data.cluster naming the cluster column, or remove few_clusters`}},
+		{id: "W11", name: "few_clusters with imputed data", args: []string{"check"}, setup: clusterData,
+			plan: edit("file: d.csv", "file: clu.csv\n  cluster: three\n  missing: impute", "rules:", "covariance: clustered\nfew_clusters: jackknife\nrules:"), code: 1,
+			want: []string{`few_clusters: jackknife is not available with imputed data (data.missing: impute)`}},
+		{id: "W12", name: "a refit without one cluster has no maximum under the few-cluster jackknife", args: []string{"run"}, setup: refitData,
+			plan: edit("file: d.csv", "file: jk.csv\n  cluster: site", "rules:", "covariance: clustered\nfew_clusters: jackknife\nrules:"), code: 0,
+			want: []string{"y: chosen: stage/parallel/logit"},
+			check: func(t *testing.T, dir, out, errs string) {
+				outDir := filepath.Join(dir, "W12-out")
+				dec, _ := os.ReadFile(filepath.Join(outDir, "decisions.json"))
+				rep, _ := os.ReadFile(filepath.Join(outDir, "report.md"))
+				why := `cumulative/nonparallel/logit: jackknife covariance: without cluster \"p\" (`
+				for _, w := range []string{`"error": "` + why, `the refit has no usable maximum (no_finite_maximum: no finite maximum likelihood estimate`, `the delete-one-cluster jackknife needs every refit at a maximum, so it is not computed`, `"correction": "jackknife"`, `"reference_df": 3`} {
+					if !strings.Contains(string(dec), w) {
+						t.Errorf("decisions.json lacks %s", w)
+					}
+				}
+				if !strings.Contains(string(rep), "fitted, but its covariance could not be computed: cumulative/nonparallel/logit: jackknife covariance: without cluster \"p\"") {
+					t.Errorf("report.md does not say why cumulative/nonparallel/logit was refused")
+				}
+			}},
 		{id: "W4", name: "every weight zero", args: []string{"run"},
 			plan: edit("file: d.csv", "file: allzero.csv\n  weights: w"), code: 1,
 			want: []string{`allzero.csv: all 3 data rows were dropped for missing values or zero weight (w = 0: 3)`}},
@@ -1758,6 +1807,8 @@ func commandLineItems(dir string) []badInput {
 			want: []string{"ordplan fit: --confidence-level must be a number strictly between 0 and 1, not 90 (for 90% intervals give 0.9)"}},
 		{id: "C7", name: "a confidence level of 1", args: fitArgs(d, "--predictors", "a", "--confidence-level", "1"), code: 2,
 			want: []string{"ordplan fit: --confidence-level must be a number strictly between 0 and 1, not 1"}},
+		{id: "C9", name: "--few-clusters without clustered errors", args: fitArgs(d, "--predictors", "a", "--few-clusters", "jackknife"), code: 2,
+			want: []string{"ordplan fit: --few-clusters jackknife corrects clustered errors, but --covariance is observed: give --covariance clustered --cluster COL, or leave --few-clusters out"}},
 		{id: "C8", name: "ordplan power given a sample size twice", args: []string{"power", "--n", "100, 200,100", "--replicates", "2", "--out", filepath.Join(dir, "C8-power")}, code: 2,
 			plan: goodPlan + assumed("{a: 0.2}", ""),
 			want: []string{`ordplan power: --n: the sample size 100 is given twice (items 1 and 3 of "100, 200,100"): each size is simulated once; give every size once`},

@@ -282,8 +282,8 @@ func ClusterJackknife(d *Data, r *Result, clusters []string, opt Options) ([]flo
 	for g, k := range keys {
 		sub := d.without(rows[k])
 		why := func(format string, a ...any) error {
-			return fmt.Errorf("without cluster %q (%d of %d rows), the refit of %s %s: the delete-one-cluster jackknife needs every refit at a maximum, so it is not computed",
-				k, len(rows[k]), d.N(), r.Model.Name(), fmt.Sprintf(format, a...))
+			return fmt.Errorf("without cluster %q (%d of %d rows), the refit %s: the delete-one-cluster jackknife needs every refit at a maximum, so it is not computed",
+				k, len(rows[k]), d.N(), fmt.Sprintf(format, a...))
 		}
 		if c := sub.emptyCategory(); c >= 0 {
 			return nil, info, why("has no row in category %q", d.categories()[c])
