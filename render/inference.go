@@ -31,12 +31,18 @@ func writeHypotheses(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	level, _ := confidence(r)
 	d.h(3, "Hypotheses of the plan")
 	d.p("Each hypothesis is a set of linear restrictions on parameters, tested by a Wald test in every candidate model that has the parameters it names (with that model's standard errors). A hypothesis of one restriction also has its estimate: the left side minus the right side as written (column Estimate, with its standard error and %s interval); decisions.json gives every restriction's estimate.", pct(level))
-	adjusted, pooled := "", false
+	adjusted, pooled, fdf := "", false, 0.0
 	for _, h := range or.Hypotheses {
 		if h.Adjusted != nil {
 			adjusted = map[string]string{"holm": "Holm", "benjamini_hochberg": "Benjamini-Hochberg"}[h.Adjustment]
 		}
 		pooled = pooled || h.Test.Pooled != ""
+		if h.Test.FRef {
+			fdf = h.Test.DF2
+		}
+	}
+	if fdf > 0 {
+		d.p("The standard errors are the delete-one-cluster jackknife: the p-value of a hypothesis of q restrictions is that of W/q on F(q, %s), W the Wald statistic (column Chi-square) and q its df, and an estimate's interval is from t on %s degrees of freedom.", numfmt.Num(fdf), numfmt.Num(fdf))
 	}
 	if pooled {
 		d.p("On imputed data an estimate is pooled by Rubin's rules, its interval from t on the Barnard-Rubin degrees of freedom.")
@@ -74,7 +80,6 @@ func writeHypotheses(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			if h.Test.Pooled != "" {
 				row[2] += " (pooled, " + h.Test.Pooled + ")"
 			}
-			row[2] += fReference(h.Test)
 			row = append(row, numfmt.Stat(h.Test.Chi2), fmt.Sprint(h.Test.DF), numfmt.PValue(h.Test.P))
 		}
 		if adjusted != "" {

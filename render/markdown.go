@@ -143,6 +143,9 @@ func errorsCell(r *runner.Result) string {
 	if used := r.Analysis.Errors.Covariance.String(); used != asked {
 		return fmt.Sprintf("%s in the plan; %s used, as sampling weights require", asked, used)
 	}
+	if r.Analysis.Errors.Jackknife() {
+		return asked + ", few_clusters: jackknife (delete-one-cluster jackknife; t and F on G-1 degrees of freedom)"
+	}
 	return asked
 }
 

@@ -95,7 +95,7 @@ func fReference(t fit.Test) string {
 	if !t.FRef {
 		return ""
 	}
-	return fmt.Sprintf(" (p from F(%d, %s) = W/%d = %s)", t.DF, numfmt.Num(t.DF2), t.DF, numfmt.Stat(t.Chi2/float64(t.DF)))
+	return fmt.Sprintf(" (p of W/%d = %s on F(%d, %s))", t.DF, numfmt.Stat(t.Chi2/float64(t.DF)), t.DF, numfmt.Num(t.DF2))
 }
 
 func testLabel(n string) string {

@@ -2,6 +2,7 @@ package runner
 
 import (
 	"bytes"
+	"fmt"
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
@@ -102,6 +103,33 @@ type OutcomeDecisions struct {
 	Terms []design.TermRecord `json:"terms,omitempty"`
 	// Imputation: how the outcome was pooled over imputed data sets.
 	Imputation *ImputationRecord `json:"imputation,omitempty"`
+	// FewClusters: the few-cluster correction of the outcome's clustered
+	// errors (absent without one).
+	FewClusters *FewClustersRecord `json:"few_cluster_correction,omitempty"`
+}
+
+// FewClustersRecord says which covariance and references an outcome's
+// inference used under the few-cluster correction, and why.
+type FewClustersRecord struct {
+	Correction  fit.ClusterCorrection `json:"correction"`
+	Covariance  string                `json:"covariance"`
+	Column      string                `json:"cluster_column"`
+	Clusters    int                   `json:"clusters"`
+	ReferenceDF int                   `json:"reference_df"`
+	Single      string                `json:"single_estimates"`
+	Joint       string                `json:"joint_wald_tests"`
+	Why         string                `json:"why"`
+}
+
+// fewClustersRecord is the outcome's FewClustersRecord, or nil without
+// the correction.
+func fewClustersRecord(an *Analysis, or *OutcomeResult) *FewClustersRecord {
+	if an == nil || !an.Errors.Jackknife() || or.Data == nil {
+		return nil
+	}
+	g := ClusterCount(or.Data)
+	return &FewClustersRecord{Correction: an.Errors.Correction, Covariance: fit.JackknifeDescribe, Column: or.dataOptions.Cluster,
+		Clusters: g, ReferenceDF: g - 1, Single: fmt.Sprintf("t(%d)", g-1), Joint: fmt.Sprintf("W/q on F(q, %d), q the restrictions, at most %d", g-1, g-1), Why: JackknifeWhy}
 }
 
 // ImputationRecord is the pooling of one outcome over imputed data sets:
@@ -226,6 +254,7 @@ func BuildDecisions(r *Result) *Decisions {
 		if or.Observed != nil {
 			od.Counts = or.Observed.Counts
 		}
+		od.FewClusters = fewClustersRecord(r.Analysis, or)
 		if or.Design != nil && !or.Design.Trivial() {
 			od.Terms = or.Design.Records()
 		}

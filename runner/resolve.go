@@ -142,7 +142,7 @@ func (c CovariancePolicy) Notes() []string {
 
 // JackknifeWhy is the run note that says why the delete-one-cluster
 // jackknife is used and what its references do.
-const JackknifeWhy = "The plan asks for the few-cluster correction (few_clusters: jackknife): with few clusters the cluster-robust sandwich is too small and its z and chi-square tests reject a true hypothesis too often; the delete-one-cluster jackknife errs less, and referring its tests to t and F on G-1 degrees of freedom (G the clusters of the rows used) rather than the normal and chi-square brings their rejection rates near the nominal level (docs/models.md gives the rates measured). The likelihood-ratio, score, Brant and Wolfe-Gould tests and the information criteria are not corrected."
+const JackknifeWhy = "The plan asks for the few-cluster correction (few_clusters: jackknife): with few clusters the cluster-robust sandwich is too small and its z and chi-square tests reject a true hypothesis too often; the delete-one-cluster jackknife errs less, and referring its tests to t and F on G-1 degrees of freedom (G the clusters of the rows used) rather than the normal and chi-square brings their rejection rates much nearer the nominal level (docs/models.md gives the rates measured). The likelihood-ratio, score, Brant and Wolfe-Gould tests and the information criteria are not corrected."
 
 // Sandwich returns the step that replaces a usable fit's covariance by the
 // sandwich estimate on the data it was fitted to (or, under the

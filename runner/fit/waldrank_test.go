@@ -295,3 +295,72 @@ func TestFewClustersRejectTooOften(t *testing.T) {
 		}
 	}
 }
+
+// TestFewClustersJointTest measures the rejection rate at 5% of a joint
+// Wald test of two slopes whose true values are 0, on data made as
+// TestFewClustersRejectTooOften's with two predictors x1, x2 (each v_g + e):
+// the cluster-robust (CR1) statistic on chi-square(2), and the
+// delete-one-cluster jackknife's W/2 on F(2, G-1) (WaldLinear, as a run
+// with few_clusters: jackknife makes it). 1000 data sets per G; run only
+// with ORDPLAN_CLUSTERS_LONG=1 (docs/models.md quotes the rates).
+func TestFewClustersJointTest(t *testing.T) {
+	if os.Getenv("ORDPLAN_CLUSTERS_LONG") == "" {
+		t.Skip("set ORDPLAN_CLUSTERS_LONG=1 to measure")
+	}
+	rng := rand.New(rand.NewPCG(20261204, 41))
+	const m, reps = 30, 1000
+	for _, G := range []int{5, 10, 20} {
+		chi, jack, made := 0, 0, 0
+		for rep := 0; rep < reps; rep++ {
+			d := &Data{J: 4, Predictors: []string{"x1", "x2"}}
+			clusters := make([]string, 0, G*m)
+			for g := 0; g < G; g++ {
+				u, v1, v2 := rng.NormFloat64(), rng.NormFloat64(), rng.NormFloat64()
+				for i := 0; i < m; i++ {
+					p := rng.Float64()
+					z := u + math.Log(p/(1-p))
+					y := 0
+					for _, c := range []float64{-1, 0, 1} {
+						if z > c {
+							y++
+						}
+					}
+					d.Y = append(d.Y, y)
+					d.X = append(d.X, v1+rng.NormFloat64(), v2+rng.NormFloat64())
+					clusters = append(clusters, strconv.Itoa(g))
+				}
+			}
+			r, err := Fit(d, robModel(Cumulative, false, Logit, 2, Parallel), Options{Workers: 1})
+			if err != nil || !r.OK() {
+				continue
+			}
+			h := mustHypothesis(t, "x1 = 0; x2 = 0", r.ParamNames)
+			V, info, err := SandwichEstimate(d, r, Clustered, clusters, false)
+			if err != nil {
+				continue
+			}
+			J, jinfo, err := ClusterJackknife(d, r, clusters, Options{Workers: 1})
+			if err != nil {
+				continue
+			}
+			made++
+			rc := *r
+			rc.UseCovariance(V, info)
+			if w := WaldLinear(&rc, h); w.OK && w.P < 0.05 {
+				chi++
+			}
+			r.UseCovariance(J, jinfo)
+			if w := WaldLinear(r, h); w.OK && w.P < 0.05 {
+				jack++
+			}
+		}
+		if made < reps/2 {
+			t.Fatalf("G = %d: only %d of %d data sets gave both covariances", G, made, reps)
+		}
+		t.Logf("G = %2d: of %d data sets, CR1 Wald on chi2(2) rejected %d (%.1f%%), jackknife W/2 on F(2, G-1) %d (%.1f%%)",
+			G, made, chi, 100*float64(chi)/float64(made), jack, 100*float64(jack)/float64(made))
+		if jack >= chi {
+			t.Errorf("G = %d: the jackknife's F test rejects %d, CR1's chi-square %d", G, jack, chi)
+		}
+	}
+}
