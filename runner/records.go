@@ -2,10 +2,10 @@ package runner
 
 import (
 	"bytes"
-	"fmt"
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
+	"fmt"
 	"path/filepath"
 	"runtime"
 
