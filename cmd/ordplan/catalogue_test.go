@@ -68,19 +68,9 @@ rules:
 // dealing its rows into 2, 3 and 60 clusters (two, three, sixty).
 func clusterData(t *testing.T, dir, id string) {
 	t.Helper()
-	src, err := os.ReadFile(filepath.Join(dir, "d.csv"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	lines := strings.Split(strings.TrimSpace(string(src)), "\n")
-	var b strings.Builder
-	b.WriteString(lines[0] + ",two,three,sixty\n")
-	for i, l := range lines[1:] {
-		fmt.Fprintf(&b, "%s,%c,%c,s%d\n", l, "pq"[i%2], "kmn"[i%3], i%60)
-	}
-	if err := os.WriteFile(filepath.Join(dir, "clu.csv"), []byte(b.String()), 0o644); err != nil {
-		t.Fatal(err)
-	}
+	withColumns(t, dir, "clu.csv", "two,three,sixty", func(i int, _ []string) string {
+		return fmt.Sprintf("%c,%c,s%d", "pq"[i%2], "kmn"[i%3], i%60)
+	})
 }
 
 // refitData writes jk.csv beside the plan: d.csv with a column site
@@ -90,21 +80,29 @@ func clusterData(t *testing.T, dir, id string) {
 // have no finite maximum there.
 func refitData(t *testing.T, dir, id string) {
 	t.Helper()
+	withColumns(t, dir, "jk.csv", "site", func(i int, f []string) string {
+		if f[0] == "1" && f[2] == "1" {
+			return "p"
+		}
+		return string("kmn"[i%3])
+	})
+}
+
+// withColumns writes name beside the plan: d.csv with the columns head
+// added, row i's cells (after a comma) being more(i, its fields).
+func withColumns(t *testing.T, dir, name, head string, more func(i int, fields []string) string) {
+	t.Helper()
 	src, err := os.ReadFile(filepath.Join(dir, "d.csv"))
 	if err != nil {
 		t.Fatal(err)
 	}
 	lines := strings.Split(strings.TrimSpace(string(src)), "\n")
 	var b strings.Builder
-	b.WriteString(lines[0] + ",site\n")
+	b.WriteString(lines[0] + "," + head + "\n")
 	for i, l := range lines[1:] {
-		site := string("kmn"[i%3])
-		if f := strings.Split(l, ","); f[0] == "1" && f[2] == "1" {
-			site = "p"
-		}
-		fmt.Fprintf(&b, "%s,%s\n", l, site)
+		fmt.Fprintf(&b, "%s,%s\n", l, more(i, strings.Split(l, ",")))
 	}
-	if err := os.WriteFile(filepath.Join(dir, "jk.csv"), []byte(b.String()), 0o644); err != nil {
+	if err := os.WriteFile(filepath.Join(dir, name), []byte(b.String()), 0o644); err != nil {
 		t.Fatal(err)
 	}
 }

@@ -58,10 +58,7 @@ func jackknifeByHand(t *testing.T, d *Data, m Model, clusters []string, G int) [
 func TestJackknifeEveryModel(t *testing.T) {
 	d := clusteredData(t)
 	const G = 8
-	clusters := make([]string, d.N())
-	for i := range clusters {
-		clusters[i] = fmt.Sprintf("c%02d", i%G)
-	}
+	clusters := dealt(d.N(), G)
 	var cases []Model
 	for _, c := range []struct {
 		cmp      Comparison
@@ -123,10 +120,7 @@ func TestJackknifeEveryModel(t *testing.T) {
 func TestJackknifeReferences(t *testing.T) {
 	d := clusteredData(t)
 	const G = 6
-	clusters := make([]string, d.N())
-	for i := range clusters {
-		clusters[i] = fmt.Sprintf("c%02d", i%G)
-	}
+	clusters := dealt(d.N(), G)
 	r := fitOK(t, d, robModel(Cumulative, false, Logit, 3, Parallel))
 	V, info, err := ClusterJackknife(d, r, clusters, Options{Workers: 1})
 	if err != nil {
@@ -205,10 +199,7 @@ func simpson(f func(float64) float64, a, b float64, n int) float64 {
 func TestJackknifeRefusesFailedRefit(t *testing.T) {
 	d := clusteredData(t)
 	const G = 5
-	clusters := make([]string, d.N())
-	for i := range clusters {
-		clusters[i] = fmt.Sprintf("c%02d", i%G)
-	}
+	clusters := dealt(d.N(), G)
 	// Every row of the top category in cluster c03: without it the
 	// category is empty.
 	for i, y := range d.Y {
@@ -224,9 +215,8 @@ func TestJackknifeRefusesFailedRefit(t *testing.T) {
 	}
 	// x2 (0/1) is 1 only in cluster c01: without it x2 is constant.
 	d2 := clusteredData(t)
-	cl2 := make([]string, d2.N())
+	cl2 := dealt(d2.N(), G)
 	for i := range cl2 {
-		cl2[i] = fmt.Sprintf("c%02d", i%G)
 		if d2.X[i*3+1] == 1 {
 			cl2[i] = "c01"
 		}
@@ -241,9 +231,8 @@ func TestJackknifeRefusesFailedRefit(t *testing.T) {
 	// the nonparallel model the slope of x2 at the first boundary has no
 	// finite maximum.
 	d3 := clusteredData(t)
-	cl3 := make([]string, d3.N())
+	cl3 := dealt(d3.N(), G)
 	for i := range cl3 {
-		cl3[i] = fmt.Sprintf("c%02d", i%G)
 		if cl3[i] == "c02" {
 			cl3[i] = "c00"
 		}
@@ -256,4 +245,13 @@ func TestJackknifeRefusesFailedRefit(t *testing.T) {
 	if err == nil || !strings.Contains(err.Error(), `without cluster "c02"`) || !strings.Contains(err.Error(), "has no usable maximum (no_finite_maximum") {
 		t.Errorf("separation: %v", err)
 	}
+}
+
+// dealt deals n rows into G clusters c00, c01, ...: row i into i mod G.
+func dealt(n, G int) []string {
+	out := make([]string, n)
+	for i := range out {
+		out[i] = fmt.Sprintf("c%02d", i%G)
+	}
+	return out
 }

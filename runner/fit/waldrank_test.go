@@ -224,24 +224,7 @@ func TestFewClustersRejectTooOften(t *testing.T) {
 	for _, G := range []int{5, 10, 20, 40, 80} {
 		rejected, rejectedT, rejectedJack, made, madeJack := 0, 0, 0, 0, 0
 		for rep := 0; rep < reps; rep++ {
-			d := &Data{J: 4, Predictors: []string{"x"}}
-			clusters := make([]string, 0, G*m)
-			for g := 0; g < G; g++ {
-				u, v := rng.NormFloat64(), rng.NormFloat64()
-				for i := 0; i < m; i++ {
-					p := rng.Float64()
-					z := u + math.Log(p/(1-p))
-					y := 0
-					for _, c := range []float64{-1, 0, 1} {
-						if z > c {
-							y++
-						}
-					}
-					d.Y = append(d.Y, y)
-					d.X = append(d.X, v+rng.NormFloat64())
-					clusters = append(clusters, strconv.Itoa(g))
-				}
-			}
+			d, clusters := fewClusterData(rng, G, m, "x")
 			r, err := Fit(d, robModel(Cumulative, false, Logit, 1, Parallel), Options{Workers: 1})
 			if err != nil || !r.OK() {
 				continue
@@ -312,24 +295,7 @@ func TestFewClustersJointTest(t *testing.T) {
 	for _, G := range []int{5, 10, 20} {
 		chi, jack, made := 0, 0, 0
 		for rep := 0; rep < reps; rep++ {
-			d := &Data{J: 4, Predictors: []string{"x1", "x2"}}
-			clusters := make([]string, 0, G*m)
-			for g := 0; g < G; g++ {
-				u, v1, v2 := rng.NormFloat64(), rng.NormFloat64(), rng.NormFloat64()
-				for i := 0; i < m; i++ {
-					p := rng.Float64()
-					z := u + math.Log(p/(1-p))
-					y := 0
-					for _, c := range []float64{-1, 0, 1} {
-						if z > c {
-							y++
-						}
-					}
-					d.Y = append(d.Y, y)
-					d.X = append(d.X, v1+rng.NormFloat64(), v2+rng.NormFloat64())
-					clusters = append(clusters, strconv.Itoa(g))
-				}
-			}
+			d, clusters := fewClusterData(rng, G, m, "x1", "x2")
 			r, err := Fit(d, robModel(Cumulative, false, Logit, 2, Parallel), Options{Workers: 1})
 			if err != nil || !r.OK() {
 				continue
@@ -363,4 +329,38 @@ func TestFewClustersJointTest(t *testing.T) {
 			t.Errorf("G = %d: the jackknife's F test rejects %d, CR1's chi-square %d", G, jack, chi)
 		}
 	}
+}
+
+// fewClusterData draws one data set of the few-cluster simulations: G
+// clusters of m rows, a cluster effect u_g ~ N(0, 1) in the latent
+// outcome (u_g + logistic noise cut at -1, 0 and 1: four categories), and
+// each predictor x = v_g + e (v_g, e ~ N(0, 1)) with no effect. Per
+// cluster u_g, then each predictor's v_g, are drawn; per row the noise,
+// then each predictor's e.
+func fewClusterData(rng *rand.Rand, G, m int, predictors ...string) (*Data, []string) {
+	d := &Data{J: 4, Predictors: predictors}
+	clusters := make([]string, 0, G*m)
+	v := make([]float64, len(predictors))
+	for g := 0; g < G; g++ {
+		u := rng.NormFloat64()
+		for k := range v {
+			v[k] = rng.NormFloat64()
+		}
+		for i := 0; i < m; i++ {
+			p := rng.Float64()
+			z := u + math.Log(p/(1-p))
+			y := 0
+			for _, c := range []float64{-1, 0, 1} {
+				if z > c {
+					y++
+				}
+			}
+			d.Y = append(d.Y, y)
+			for k := range v {
+				d.X = append(d.X, v[k]+rng.NormFloat64())
+			}
+			clusters = append(clusters, strconv.Itoa(g))
+		}
+	}
+	return d, clusters
 }
