@@ -45,7 +45,14 @@ func writeChosen(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	stat := "z"
 	if res.RefDF > 0 {
 		stat = "t"
-		d.p("Standard errors from the delete-one-cluster jackknife over %d clusters: each p-value and interval refers to t on G-1 = %s degrees of freedom, not to the normal (few clusters; few_clusters: jackknife).", res.Clusters, numfmt.Num(res.RefDF))
+		if res.Correction == fit.Jackknife {
+			d.p("Standard errors from the delete-one-cluster jackknife over %d clusters: each p-value and interval refers to t on G-1 = %s degrees of freedom, not to the normal (few clusters; few_clusters: jackknife).", res.Clusters, numfmt.Num(res.RefDF))
+		} else {
+			d.p("Standard errors from the cluster-robust sandwich over %d clusters: each p-value and interval refers to t on G-1 = %s degrees of freedom, not to the normal (the covariance is estimated from the %d clusters' sums).", res.Clusters, numfmt.Num(res.RefDF), res.Clusters)
+		}
+	}
+	if why := res.SingularClustered(); why != "" {
+		d.p("**Warning:** %s, %s: some combinations of its estimates have no estimated variance, and no decision rule read a Wald test made from this covariance.", or.Chosen.ID, why)
 	}
 	if res.DF != nil {
 		stat = "t"

@@ -95,7 +95,7 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		d.p("Pooled over the imputed sets, z is the quantile of t on the Barnard-Rubin degrees of freedom of b (of the smallest among b_m's parameters for a constrained predictor), as for the estimates.")
 	}
 	if res.RefDF > 0 {
-		d.p("Under the delete-one-cluster jackknife, z is the quantile of t on G-1 = %s degrees of freedom, as for the estimates.", numfmt.Num(res.RefDF))
+		d.p("With cluster-robust errors from G = %d clusters, z is the quantile of t on G-1 = %s degrees of freedom, as for the estimates.", res.Clusters, numfmt.Num(res.RefDF))
 	}
 	if where {
 		d.p("A column whose term enters an interaction has its odds ratio where the terms it interacts with have their columns at 0 (column Holds at). The exp(b) of an interaction column is a ratio of odds ratios: the factor by which the odds ratio of one of its components changes with a unit of the other.")

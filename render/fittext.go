@@ -66,7 +66,7 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 	}
 	if r.OK() {
 		cov := r.CovType.Label()
-		if r.RefDF > 0 {
+		if r.Correction == fit.Jackknife {
 			cov = fit.JackknifeLabel
 		}
 		if r.CovType == fit.Clustered {

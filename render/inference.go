@@ -38,11 +38,11 @@ func writeHypotheses(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		}
 		pooled = pooled || h.Test.Pooled != ""
 		if h.Test.FRef {
-			fdf = h.Test.DF2
+			fdf = h.Test.DF2 + float64(h.Test.DF) // G
 		}
 	}
 	if fdf > 0 {
-		d.p("The standard errors are the delete-one-cluster jackknife: the p-value of a hypothesis of q restrictions is that of W/q on F(q, %s), W the Wald statistic (column Chi-square) and q its df, and an estimate's interval is from t on %s degrees of freedom.", numfmt.Num(fdf), numfmt.Num(fdf))
+		d.p("The standard errors are cluster-robust, from G = %s clusters: the p-value of a hypothesis of q restrictions is that of W (G-q)/((G-1) q) on F(q, G-q), W the Wald statistic (column Chi-square) and q its df, and an estimate's interval is from t on G-1 = %s degrees of freedom.", numfmt.Num(fdf), numfmt.Num(fdf-1))
 	}
 	if pooled {
 		d.p("On imputed data an estimate is pooled by Rubin's rules, its interval from t on the Barnard-Rubin degrees of freedom.")

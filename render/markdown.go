@@ -108,9 +108,9 @@ func writeSummary(d *doc, r *runner.Result) {
 		}
 		if g := runner.ClusterCount(or.Data); r.Analysis != nil && r.Analysis.Errors.Covariance == fit.Clustered && g >= 2 && g < fit.FewClusters {
 			if r.Analysis.Errors.Jackknife() {
-				item += fmt.Sprintf(" **Its standard errors rest on %d clusters of %s, fewer than %d: they are the delete-one-cluster jackknife, with p-values and intervals from t and F on %d degrees of freedom, and joint Wald tests of more than %d restrictions are not computed** (see the notes under The models).", g, mdCode(r.Plan.Data.Cluster), fit.FewClusters, g-1, g-1)
+				item += fmt.Sprintf(" **Its standard errors rest on %d clusters of %s, fewer than %d: they are the delete-one-cluster jackknife, with p-values and intervals from t on %d degrees of freedom and F(q, G-q), and joint Wald tests of more than %d restrictions are not computed** (see the notes under The models).", g, mdCode(r.Plan.Data.Cluster), fit.FewClusters, g-1, g-1)
 			} else {
-				item += fmt.Sprintf(" **Its cluster-robust standard errors rest on %d clusters of %s, fewer than %d: they tend to be too small, and joint Wald tests of more than %d restrictions are not computed** (see the notes under The models).", g, mdCode(r.Plan.Data.Cluster), fit.FewClusters, g-1)
+				item += fmt.Sprintf(" **Its cluster-robust standard errors rest on %d clusters of %s, fewer than %d: they tend to be too small even on t(G-1) and F(q, G-q) references, and joint Wald tests of more than %d restrictions are not computed** (see the notes under The models).", g, mdCode(r.Plan.Data.Cluster), fit.FewClusters, g-1)
 			}
 		}
 		items = append(items, item)
@@ -144,7 +144,7 @@ func errorsCell(r *runner.Result) string {
 		return fmt.Sprintf("%s in the plan; %s used, as sampling weights require", asked, used)
 	}
 	if r.Analysis.Errors.Jackknife() {
-		return asked + ", few_clusters: jackknife (delete-one-cluster jackknife; t and F on G-1 degrees of freedom)"
+		return asked + ", few_clusters: jackknife (delete-one-cluster jackknife; t on G-1 degrees of freedom, F(q, G-q))"
 	}
 	return asked
 }
@@ -232,9 +232,9 @@ func independenceSentence(r *runner.Result) string {
 		}
 		how := "cluster-robust sandwich"
 		if pol.Jackknife() {
-			how = "delete-one-cluster jackknife, with t and F references on G-1 degrees of freedom"
+			how = "delete-one-cluster jackknife"
 		}
-		s := fmt.Sprintf("Each model's likelihood treats the observations as independent given the predictors; it assumes %s The standard errors, intervals, Wald tests and the plan's hypotheses allow for correlation within the %d clusters of %s (%s), but the likelihood-ratio, score, Brant and Wolfe-Gould tests and AIC and BIC do not: they take every observation as independent, and reject too often when observations of a cluster are alike.", shape, g, mdCode(r.Plan.Data.Cluster), how)
+		s := fmt.Sprintf("Each model's likelihood treats the observations as independent given the predictors; it assumes %s The standard errors, intervals, Wald tests and the plan's hypotheses come from a covariance estimated with the clusters as units (%s): they allow for correlation within the %d clusters of %s, provided the clusters are independent of one another, but that covariance is itself estimated from only %d clusters, so a single estimate refers to t on G-1 = %d degrees of freedom and a joint Wald test of q restrictions to F(q, G-q), which leaves such a test little power when q is not small against G, none when q reaches G; and a model with more than G-1 = %d parameters has a singular cluster-robust covariance. The likelihood-ratio, score, Brant and Wolfe-Gould tests and AIC and BIC do not use that covariance: they take every observation as independent, which holds their level when the clusters do not matter and makes them reject too often when observations of a cluster are alike.", shape, how, g, mdCode(r.Plan.Data.Cluster), g, g-1, g-1)
 		switch {
 		case g < fit.FewClusters && pol.Jackknife():
 			s += fmt.Sprintf(" With %d clusters (fewer than about %d) the cluster-robust sandwich tends to be too small; the jackknife with t and F references, which the plan asks for, keeps the rejection rates of true hypotheses nearer their level, though not exactly at it.", g, fit.FewClusters)

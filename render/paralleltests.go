@@ -89,13 +89,14 @@ func testRow(label string, t fit.Test) []string {
 }
 
 // fReference says, after a test's label, that a Wald statistic W made on a
-// delete-one-cluster jackknife covariance is referred to F ("" for any
-// other test): the tables show W and its df, the p-value is that of F.
+// cluster-robust covariance is referred to F ("" for any other test): the
+// tables show W and its df q, the p-value is that of W (G-q)/((G-1) q) on
+// F(q, G-q).
 func fReference(t fit.Test) string {
 	if !t.FRef {
 		return ""
 	}
-	return fmt.Sprintf(" (p of W/%d = %s on F(%d, %s))", t.DF, numfmt.Stat(t.Chi2/float64(t.DF)), t.DF, numfmt.Num(t.DF2))
+	return " (p of " + runner.TestStatistic(t) + ")"
 }
 
 func testLabel(n string) string {

@@ -230,7 +230,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 			note += "; " + t.Warning
 		}
 		if t.FRef {
-			note = "Wald statistic on the delete-one-cluster jackknife covariance: p from F(df, " + csvNum(t.DF2) + ") at chi2/df"
+			note = fRefNote(t)
 		}
 		rows = append(rows, []string{family, approach, link, scope, t.Name, csvNum(t.Chi2), strconv.Itoa(t.DF), csvNum(t.P), note})
 	}
@@ -280,8 +280,11 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		return out
 	}
 	if len(or.TermTests) > 0 {
-		add("term-tests", "the Wald and likelihood-ratio tests of each term of the chosen model (tested_with: the interactions containing the term, tested with it; restricted_model: the refit without them; on imputed data chi2 is df x F, p from F(df, df2), df2 empty when infinite; note: why a test was not computed)",
-			termTestHead, termTestRows(or))
+		about := "the Wald and likelihood-ratio tests of each term of the chosen model (tested_with: the interactions containing the term, tested with it; restricted_model: the refit without them; on imputed data chi2 is df x F, p from F(df, df2), df2 empty when infinite; note: why a test was not computed)"
+		if or.Chosen.Result.RefDF > 0 {
+			about = strings.TrimSuffix(about, ")") + "; on the cluster-robust covariance of G clusters a Wald chi2 is referred as chi2 (G-df)/((G-1) df) to F(df, df2), df2 = G-df, and note says so)"
+		}
+		add("term-tests", about, termTestHead, termTestRows(or))
 	}
 	// Marginal effects.
 	if len(or.Marginal) > 0 {
@@ -389,4 +392,14 @@ func writeFilesSection(d *doc, r *runner.Result) {
 		}
 	}
 	d.captioned("Files written by this run").table([]string{"File", "Content"}, rows)
+}
+
+// fRefNote is the note of a table row whose Wald statistic (chi2) is made
+// on a cluster-robust covariance of G clusters: its p-value is that of
+// F = chi2 (G-df)/((G-1) df) on F(df, G-df) ("" for any other test).
+func fRefNote(t fit.Test) string {
+	if !t.FRef {
+		return ""
+	}
+	return fmt.Sprintf("Wald statistic on a cluster-robust covariance of G = %s clusters: p from %s at F = chi2 (G-df)/((G-1) df) = %s", csvNum(t.DF2+float64(t.DF)), t.Reference, csvNum(t.F))
 }

@@ -73,7 +73,11 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			d.p("**Degrees of freedom of the tests of %s:** %s.", mdText(tt.Term), mdText(tt.Bound))
 		}
 	}
-	if a := r.Analysis; a != nil && a.Errors.Covariance.IsSandwich() && !a.Errors.Sampling {
+	switch a := r.Analysis; {
+	case a != nil && a.Errors.Covariance == fit.Clustered && !a.Errors.Sampling && wald && lr:
+		g := runner.ClusterCount(or.Data)
+		d.p("The two tests compare different things. The Wald test of a term asks whether its slopes are 0 in %s, measured against the standard errors of the %s: they allow for correlation within the %d clusters, but the covariance is estimated from only %d cluster sums, so a test of q slopes is referred to F(q, %d-q), whose power falls as q nears %d. The likelihood-ratio test compares the likelihoods of the model with and without the term, which take every row as independent: it holds its level if the clusters do not matter and rejects too often if observations of a cluster are alike. Where the two disagree, either may be the one that errs: a Wald p-value far above the likelihood ratio's can be the price of few clusters, one far below it can come from the likelihood's independence or from few clusters alike.", or.Chosen.ID, a.Errors.Phrase(), g, g, g, g)
+	case a != nil && a.Errors.Covariance.IsSandwich() && !a.Errors.Sampling:
 		d.p("The Wald tests use the standard errors of the %s, which do not rest on the model's variance being right; the likelihood-ratio tests rest on it (and treat the rows as independent), so where the two disagree this may be why.", a.Errors.Phrase())
 	}
 	if pooled {
@@ -121,7 +125,7 @@ func termTestRows(or *runner.OutcomeResult) [][]string {
 				restricted = tt.Without
 			}
 			var note []string
-			for _, n := range []string{t.Warning, tt.Bound} {
+			for _, n := range []string{t.Warning, tt.Bound, fRefNote(t)} {
 				if n != "" {
 					note = append(note, n)
 				}

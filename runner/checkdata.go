@@ -3,8 +3,11 @@ package runner
 import (
 	"fmt"
 	"slices"
+	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/plan"
+	"ordplan/runner/data"
 	"ordplan/runner/design"
 	"ordplan/runner/fit"
 )
@@ -30,6 +33,10 @@ func CheckData(p *plan.Plan) ([]string, error) {
 			return nil, err
 		}
 		if w := a.FewClusters(r, ld.Data); w != "" {
+			warnings = append(warnings, fmt.Sprintf("outcome %s: %s", r.Outcome, w))
+		}
+		terms := termsOf(ld.Design)
+		if w := a.SingularModels(r, ld.Data, gridModels(a, terms), len(ld.Data.Categories), allColumns(terms)); w != "" {
 			warnings = append(warnings, fmt.Sprintf("outcome %s: %s", r.Outcome, w))
 		}
 		scopes = append(scopes, hypothesisScope(p.Outcomes[i].Column, ld.Design, ld.Data.Categories))
@@ -67,6 +74,9 @@ func FewClustersWarnings(res *Result) []string {
 		if w := an.FewClusters(an.Outcomes[i], or.Data); w != "" {
 			out = append(out, fmt.Sprintf("outcome %s: %s", an.Outcomes[i].Outcome, w))
 		}
+		if w := an.SingularModels(an.Outcomes[i], or.Data, or.Fits, len(or.Data.Categories), allColumns(or.Terms)); w != "" {
+			out = append(out, fmt.Sprintf("outcome %s: %s", an.Outcomes[i].Outcome, w))
+		}
 	}
 	return out
 }
@@ -91,7 +101,7 @@ func NotCheckedWithoutData(p *plan.Plan) []string {
 		out = append(out, "data.weights: every weight is a number of zero or more")
 	}
 	if p.Data.Cluster != "" {
-		out = append(out, fmt.Sprintf("data.cluster: the number of clusters in the rows used (fewer than %d gives a warning: cluster-robust errors too small, joint Wald tests of more than G-1 restrictions not computed)", fit.FewClusters))
+		out = append(out, fmt.Sprintf("data.cluster: the number of clusters in the rows used (fewer than %d gives a warning: cluster-robust errors too small, joint Wald tests of more than G-1 restrictions not computed; a model of more than G-1 parameters gives another: its cluster-robust covariance is singular)", fit.FewClusters))
 	}
 	if p.Data.Imputed != nil {
 		out = append(out, "data.imputed: the imputed sets against the data file (their rows, columns and the values the data observe)")
@@ -136,4 +146,65 @@ func NotCheckedWithoutData(p *plan.Plan) []string {
 	}
 	slices.Sort(out)
 	return out
+}
+
+// SingularModels is the warning (W19) of clustered errors whose G
+// clusters are fewer than the parameters of some model of the grid plus
+// one: the candidates and the models the rules' tests compare them with
+// (jobs; fits of one term alone parallel left out), each model's
+// parameters counted from its structure on the columns cols and J
+// categories. The cluster-robust covariance of such a model has rank at
+// most G-1, so it is singular (fit.Result.SingularClustered); a rule does
+// not read a Wald test made from it. "" without clustered errors or
+// without such a model. One wording, which check, run (the outcome's notes
+// in decisions.json and the report) and the report's chosen model give.
+func (a *Analysis) SingularModels(r Reading, ds *data.Dataset, jobs []*FitEntry, J int, cols []string) string {
+	if a.Errors.Covariance != fit.Clustered || len(ds.Cluster) == 0 {
+		return ""
+	}
+	g := ClusterCount(ds)
+	if g < 2 {
+		return ""
+	}
+	var over []string
+	for _, e := range jobs {
+		if e.OnlyParallel != "" {
+			continue
+		}
+		m, err := e.Spec.Model()
+		if err != nil {
+			continue
+		}
+		P, err := fit.NumParams(m, J, cols)
+		if err != nil || !fit.SingularCovariance(P, g) {
+			continue
+		}
+		over = append(over, fmt.Sprintf("%s (%d parameters)", e.ID, P))
+	}
+	if len(over) == 0 {
+		return ""
+	}
+	hasParams := words.AndList(over) + " have"
+	if len(over) == 1 {
+		hasParams = strings.Replace(over[0], " (", " has ", 1)
+		hasParams = strings.TrimSuffix(hasParams, ")") + ","
+	}
+	return fmt.Sprintf("%s: column %q holds %d clusters in the %d rows used, and %s more than G-1 = %d: a cluster-robust covariance from G clusters has rank at most G-1, so such a model's covariance is singular (some combinations of its estimates have no estimated variance). A decision rule treats a Wald test made from it as not computable, so the models it would be compared with are not rejected by that test; if such a model is chosen, its standard errors, intervals and tests rest on a singular covariance. Fewer parameters (a partial or parallel model, fewer terms) or more clusters avoid it",
+		a.clusterKey(), r.Options.Cluster, g, ds.N, hasParams, g-1)
+}
+
+// gridModels are the fits of the grid of an outcome as check sees them,
+// before any fit: the listed partial sets (a stepwise one is unknown, and
+// its partial model left out).
+func gridModels(a *Analysis, terms []fit.Term) []*FitEntry {
+	var sets []FreeSet
+	for _, ap := range a.Models.Approaches {
+		fs := FreeSet{Approach: ap, Source: "stepwise"}
+		if a.Models.Partial.Select == nil {
+			fs = FreeSet{Approach: ap, Predictors: termsIn(terms, a.Models.Partial.Free), Source: "plan"}
+		}
+		sets = append(sets, fs)
+	}
+	jobs, _ := gridJobs(a, terms, sets, a.Models.Backward())
+	return jobs
 }

@@ -134,9 +134,7 @@ func Record(r *fit.Result) FitRecord {
 	}
 	P := len(r.ParamNames)
 	cov := &CovarianceJSON{Kind: r.CovType, Parameters: r.ParamNames, Matrix: make([][]*float64, P), Clusters: r.Clusters, ReferenceDF: r.RefDF}
-	if r.RefDF > 0 {
-		cov.Correction = fit.Jackknife
-	}
+	cov.Correction = r.Correction
 	for i := range cov.Matrix {
 		cov.Matrix[i] = make([]*float64, P)
 		for j := range cov.Matrix[i] {

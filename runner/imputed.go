@@ -787,11 +787,11 @@ func imputedNotes(m int, sampling bool) []string {
 
 // TestStatistic writes a test's statistic for a sentence: "chi2(2) =
 // 3.210", for a test pooled over imputed sets "F(2, 31.4) = 1.605
-// (pooled, D3)", for a Wald test on a delete-one-cluster jackknife
-// covariance "F(2, 9) = 1.605 (Wald 3.210 / 2)".
+// (pooled, D3)", for a Wald test on a cluster-robust covariance "F(2, 8) =
+// 1.427 (Wald 3.210 times (G-q)/((G-1) q), G = 10 clusters)".
 func TestStatistic(t fit.Test) string {
 	if t.FRef {
-		return fmt.Sprintf("F(%d, %s) = %s (Wald %s / %d)", t.DF, numfmt.Num(t.DF2), numfmt.Stat(t.Chi2/float64(t.DF)), numfmt.Stat(t.Chi2), t.DF)
+		return fmt.Sprintf("F(%d, %s) = %s (Wald %s times (G-q)/((G-1) q), G = %s clusters)", t.DF, numfmt.Num(t.DF2), numfmt.Stat(t.F), numfmt.Stat(t.Chi2), numfmt.Num(t.DF2+float64(t.DF)))
 	}
 	if t.Pooled == "" {
 		return fmt.Sprintf("chi2(%d) = %s", t.DF, numfmt.Stat(t.Chi2))

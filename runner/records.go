@@ -129,7 +129,7 @@ func fewClustersRecord(an *Analysis, or *OutcomeResult) *FewClustersRecord {
 	}
 	g := ClusterCount(or.Data)
 	return &FewClustersRecord{Correction: an.Errors.Correction, Covariance: fit.JackknifeDescribe, Column: or.dataOptions.Cluster,
-		Clusters: g, ReferenceDF: g - 1, Single: fmt.Sprintf("t(%d)", g-1), Joint: fmt.Sprintf("W/q on F(q, %d), q the restrictions, at most %d", g-1, g-1), Why: JackknifeWhy}
+		Clusters: g, ReferenceDF: g - 1, Single: fmt.Sprintf("t(%d)", g-1), Joint: fmt.Sprintf("W (G-q)/((G-1) q) on F(q, G-q), G = %d, q the restrictions, at most %d", g, g-1), Why: JackknifeWhy}
 }
 
 // ImputationRecord is the pooling of one outcome over imputed data sets:

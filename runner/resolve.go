@@ -100,16 +100,26 @@ func (c CovariancePolicy) Jackknife() bool {
 // Phrase names the standard errors in running prose (a methods paragraph).
 func (c CovariancePolicy) Phrase() string {
 	if c.Jackknife() {
-		return "delete-one-cluster jackknife, its single estimates referred to t and its joint Wald tests to F on G-1 degrees of freedom (G clusters)"
+		return "delete-one-cluster jackknife, " + clusterReferencesPhrase
+	}
+	if c.Covariance == fit.Clustered {
+		return c.Covariance.Phrase() + ", " + clusterReferencesPhrase
 	}
 	return c.Covariance.Phrase()
 }
 
+// clusterReferencesPhrase names, in running prose, the references of
+// every cluster-robust covariance (fit.Result.RefDF, waldTest).
+const clusterReferencesPhrase = "its single estimates referred to t on G-1 degrees of freedom and its joint Wald tests of q restrictions as W (G-q)/((G-1) q) to F(q, G-q) (G clusters)"
+
 // Describe says in one sentence how the standard errors are computed, and
-// under the jackknife which references the inference takes.
+// under clustered errors which references the inference takes.
 func (c CovariancePolicy) Describe() string {
 	if c.Jackknife() {
 		return fit.JackknifeDescribe
+	}
+	if c.Covariance == fit.Clustered {
+		return c.Covariance.Describe() + "; single estimates, intervals and p-values refer to t on G-1 degrees of freedom, " + fit.ClusterJointReference
 	}
 	return c.Covariance.Describe()
 }
@@ -142,7 +152,7 @@ func (c CovariancePolicy) Notes() []string {
 
 // JackknifeWhy is the run note that says why the delete-one-cluster
 // jackknife is used and what its references do.
-const JackknifeWhy = "The plan asks for the few-cluster correction (few_clusters: jackknife): with few clusters the cluster-robust sandwich is too small and its z and chi-square tests reject a true hypothesis too often; the delete-one-cluster jackknife errs less, and referring its tests to t and F on G-1 degrees of freedom (G the clusters of the rows used) rather than the normal and chi-square brings their rejection rates much nearer the nominal level (docs/models.md gives the rates measured). The likelihood-ratio, score, Brant and Wolfe-Gould tests and the information criteria are not corrected."
+const JackknifeWhy = "The plan asks for the few-cluster correction (few_clusters: jackknife): with few clusters the cluster-robust sandwich is too small and its z and chi-square tests reject a true hypothesis too often; the delete-one-cluster jackknife errs less, and referring its single estimates to t on G-1 degrees of freedom and its joint Wald tests to F(q, G-q) (G the clusters of the rows used, q the restrictions) rather than the normal and chi-square brings their rejection rates much nearer the nominal level (docs/models.md gives the rates measured). The likelihood-ratio, score, Brant and Wolfe-Gould tests and the information criteria are not corrected."
 
 // Sandwich returns the step that replaces a usable fit's covariance by the
 // sandwich estimate on the data it was fitted to (or, under the
@@ -439,11 +449,11 @@ func (a *Analysis) FewClusters(r Reading, ds *data.Dataset) string {
 	}
 	col := r.Options.Cluster
 	if a.Errors.Jackknife() {
-		return fmt.Sprintf("%s: column %q holds %d clusters in the %d rows used, fewer than %d: as asked (%s), standard errors are the delete-one-cluster jackknife (each model refitted %d times, once without each cluster), single estimates and intervals refer to t on G-1 = %d degrees of freedom and joint Wald tests to F(q, %d), which keep the rejection rates of true hypotheses nearer their level than the cluster-robust sandwich with normal references; a joint Wald test of more than %d restrictions is not computed (the covariance has rank at most G-1)",
-			a.clusterKey(), col, g, ds.N, fit.FewClusters, a.correctionKey(), g, g-1, g-1, g-1)
+		return fmt.Sprintf("%s: column %q holds %d clusters in the %d rows used, fewer than %d: as asked (%s), standard errors are the delete-one-cluster jackknife (each model refitted %d times, once without each cluster), single estimates and intervals refer to t on G-1 = %d degrees of freedom and joint Wald tests of q restrictions to F(q, %d-q), which keep the rejection rates of true hypotheses nearer their level than the cluster-robust sandwich; a joint Wald test of more than %d restrictions is not computed (the covariance has rank at most G-1)",
+			a.clusterKey(), col, g, ds.N, fit.FewClusters, a.correctionKey(), g, g-1, g, g-1)
 	}
-	return fmt.Sprintf("%s: column %q holds %d clusters in the %d rows used, fewer than %d: cluster-robust standard errors tend to be too small, so their z and Wald tests reject a true hypothesis too often, and a joint Wald test of more than G-1 = %d restrictions is not computed (the covariance has rank at most G-1, G the clusters). Where the clusters are a few fixed units, a model with %s as a categorical predictor (one effect per cluster; not for a predictor constant within clusters) and observed or sandwich errors is the safer analysis; otherwise read the clustered p-values and intervals as too small",
-		a.clusterKey(), col, g, ds.N, fit.FewClusters, g-1, col)
+	return fmt.Sprintf("%s: column %q holds %d clusters in the %d rows used, fewer than %d: cluster-robust standard errors tend to be too small, so their tests may reject a true hypothesis too often even on the references they take (t on G-1 = %d degrees of freedom, F(q, %d-q) for q restrictions), and a joint Wald test of more than G-1 = %d restrictions is not computed (the covariance has rank at most G-1, G the clusters). Where the clusters are a few fixed units, a model with %s as a categorical predictor (one effect per cluster; not for a predictor constant within clusters) and observed or sandwich errors is the safer analysis; otherwise read the clustered p-values and intervals as too small",
+		a.clusterKey(), col, g, ds.N, fit.FewClusters, g-1, g, g-1, col)
 }
 
 // CheckDesign checks an outcome's fit input before any model is fitted

@@ -86,7 +86,7 @@ covariance: clustered
 		t.Errorf("Wald should be computed: %+v", w)
 	}
 	v := verdictOf(or.Rules[0], "cumulative/parallel/logit")
-	if v == nil || !strings.Contains(v.Reason, "Wald test against cumulative/nonparallel/logit: chi2(") {
+	if v == nil || !strings.Contains(v.Reason, "Wald test against cumulative/nonparallel/logit: F(9, 15) = ") || !strings.Contains(v.Reason, "times (G-q)/((G-1) q), G = 24 clusters)") {
 		t.Errorf("verdict %+v", v)
 	}
 	for _, v := range or.Rules[1].Verdicts {
@@ -166,15 +166,20 @@ inference:
 	}
 	res, warn := run("c3")
 	or := res.Outcomes[0]
-	want := `data.cluster: column "c3" holds 3 clusters in the 1775 rows used, fewer than 40: cluster-robust standard errors tend to be too small, so their z and Wald tests reject a true hypothesis too often, and a joint Wald test of more than G-1 = 2 restrictions is not computed`
-	if len(warn) != 1 || !strings.HasPrefix(warn[0], "outcome safety: "+want) {
-		t.Errorf("check's warnings %q, want one beginning %q", warn, want)
+	want := `data.cluster: column "c3" holds 3 clusters in the 1775 rows used, fewer than 40: cluster-robust standard errors tend to be too small, so their tests may reject a true hypothesis too often even on the references they take (t on G-1 = 2 degrees of freedom, F(q, 3-q) for q restrictions), and a joint Wald test of more than G-1 = 2 restrictions is not computed`
+	// With 3 clusters every model of the grid has more parameters than
+	// G-1 = 2: its covariance is singular (W19).
+	singular := `data.cluster: column "c3" holds 3 clusters in the 1775 rows used, and cumulative/parallel/logit (7 parameters) and cumulative/nonparallel/logit (16 parameters) have more than G-1 = 2: a cluster-robust covariance from G clusters has rank at most G-1, so such a model's covariance is singular`
+	if len(warn) != 2 || !strings.HasPrefix(warn[0], "outcome safety: "+want) || !strings.HasPrefix(warn[1], "outcome safety: "+singular) {
+		t.Errorf("check's warnings %q, want one beginning %q and one %q", warn, want, singular)
 	}
-	if w := FewClustersWarnings(res); len(w) != 1 || w[0] != warn[0] {
+	if w := FewClustersWarnings(res); !slices.Equal(w, warn) {
 		t.Errorf("run's warnings %q, check's %q", w, warn)
 	}
-	if !slices.ContainsFunc(or.Notes, func(n string) bool { return strings.HasPrefix(n, want) }) {
-		t.Errorf("the outcome's notes lack the warning: %q", or.Notes)
+	for _, w := range []string{want, singular} {
+		if !slices.ContainsFunc(or.Notes, func(n string) bool { return strings.HasPrefix(n, w) }) {
+			t.Errorf("the outcome's notes lack the warning %q: %q", w, or.Notes)
+		}
 	}
 	need := func(q int) string {
 		return fmt.Sprintf("%d restrictions need at least %d clusters, and the data have 3: a cluster-robust covariance from G clusters has rank at most G-1", q, q+1)

@@ -175,7 +175,7 @@ func (an *Analysis) clusterCaveat(r plan.Rule) string {
 	}
 	switch {
 	case r.Kind == plan.RuleRejectIfTestRejects && r.Test.NeedsLikelihood():
-		return fmt.Sprintf("The %s test takes every observation as independent: it ignores the clusters of %s that the clustered standard errors allow for, and rejects too often when observations of a cluster are alike (the Wald test uses the cluster-robust covariance)", r.Test.Title(), an.clusterColumn())
+		return fmt.Sprintf("The %s test compares the two models' likelihoods, which take every observation as independent: it ignores the clusters of %s, holds its level when they do not matter and rejects too often when observations of a cluster are alike. A Wald test would use the cluster-robust covariance instead, referred to F(q, G-q) for q restrictions and G clusters: it allows for the clusters but has little power when q is not small against G, and is not computed when q reaches G or when the less constrained model has more than G-1 parameters", r.Test.Title(), an.clusterColumn())
 	case (r.Kind == plan.RuleChoose || r.Kind == plan.RulePreferSimpler) && (r.By == "aic" || r.By == "bic"):
 		return fmt.Sprintf("%s takes every observation as independent: the clusters of %s that the clustered standard errors allow for do not reach it", criterionName(r.By), an.clusterColumn())
 	case (r.Kind == plan.RuleChoose || r.Kind == plan.RulePreferSimpler) && r.By == "tic":
@@ -191,7 +191,7 @@ func ClusterWarnings(p *plan.Plan) []string {
 	an := ResolvePlan(p)
 	var out []string
 	if sel := p.Models.Partial.Select; sel != nil && an.Errors.Covariance == fit.Clustered && sel.Test.NeedsLikelihood() {
-		out = append(out, fmt.Sprintf("models.partial.select: the stepwise selection by %s tests takes every observation as independent: it ignores the clusters of %s that the clustered standard errors allow for (test: wald uses them)", sel.Test.Title(), an.clusterColumn()))
+		out = append(out, fmt.Sprintf("models.partial.select: the stepwise selection by %s tests takes every observation as independent: it ignores the clusters of %s that the clustered standard errors allow for (test: wald uses them, each step's test of q restrictions referred to F(q, G-q), G the clusters)", sel.Test.Title(), an.clusterColumn()))
 	}
 	for i, r := range an.Rules {
 		if c := an.clusterCaveat(r); c != "" {
@@ -435,6 +435,11 @@ func (env *ruleEnv) judgeTest(r plan.Rule, f *FitEntry) (bool, string) {
 			continue
 		}
 		tt := env.test(r.Test, f, full)
+		if why := full.Result.SingularClustered(); r.Test == fit.TestWald && tt.OK && why != "" {
+			// A Wald test of fewer restrictions can be made from a singular
+			// cluster-robust covariance, but no rule decides on one (W19).
+			tt = fit.Test{Name: tt.Name, Reason: fmt.Sprintf("%s: %s; no rule reads a Wald test made from it", full.ID, why)}
+		}
 		if tt.Negative {
 			parts = append(parts, fmt.Sprintf("the %s test against %s: %s", r.Test.Title(), full.ID, tt.Reason))
 			continue

@@ -141,6 +141,9 @@ func runOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash 
 		return nil, err
 	}
 	or.Fits = jobs
+	if w := an.SingularModels(r, ds, jobs, len(ds.Categories), allColumns(or.Terms)); w != "" {
+		or.Notes = append(or.Notes, w)
+	}
 
 	// 3. Tests of the parallel-lines assumption and nested LR tests.
 	for _, ap := range an.Models.Approaches {

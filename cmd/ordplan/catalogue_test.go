@@ -65,11 +65,11 @@ rules:
 `
 
 // clusterData writes clu.csv beside the plan: d.csv with cluster columns
-// dealing its rows into 2, 3 and 60 clusters (two, three, sixty).
+// dealing its rows into 2, 3, 5 and 60 clusters (two, three, five, sixty).
 func clusterData(t *testing.T, dir, id string) {
 	t.Helper()
-	withColumns(t, dir, "clu.csv", "two,three,sixty", func(i int, _ []string) string {
-		return fmt.Sprintf("%c,%c,s%d", "pq"[i%2], "kmn"[i%3], i%60)
+	withColumns(t, dir, "clu.csv", "two,three,five,sixty", func(i int, _ []string) string {
+		return fmt.Sprintf("%c,%c,f%d,s%d", "pq"[i%2], "kmn"[i%3], i%5, i%60)
 	})
 }
 
@@ -1382,7 +1382,7 @@ func catalogue(dir string) (items []badInput) {
 			plan: edit("file: d.csv", "file: clu.csv\n  cluster: three", "rules:", "covariance: clustered\nrules:"), code: 0,
 			want: []string{"plan is valid"},
 			check: func(t *testing.T, dir, out, errs string) {
-				few := `data.cluster: column "three" holds 3 clusters in the 120 rows used, fewer than 40: cluster-robust standard errors tend to be too small, so their z and Wald tests reject a true hypothesis too often, and a joint Wald test of more than G-1 = 2 restrictions is not computed (the covariance has rank at most G-1, G the clusters). Where the clusters are a few fixed units, a model with three as a categorical predictor`
+				few := `data.cluster: column "three" holds 3 clusters in the 120 rows used, fewer than 40: cluster-robust standard errors tend to be too small, so their tests may reject a true hypothesis too often even on the references they take (t on G-1 = 2 degrees of freedom, F(q, 3-q) for q restrictions), and a joint Wald test of more than G-1 = 2 restrictions is not computed (the covariance has rank at most G-1, G the clusters). Where the clusters are a few fixed units, a model with three as a categorical predictor`
 				if !strings.Contains(errs, "W8.yaml: outcome y: "+few) {
 					t.Errorf("check does not warn of few clusters:\n%s", errs)
 				}
@@ -1429,8 +1429,27 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("report.md does not say why the tests were not computed")
 				}
 				// A test of one restriction (each predictor's) is made.
-				if !strings.Contains(string(rep), "| Wald: a | ") || strings.Contains(string(rep), "| Wald: a |  |") {
+				// (on F(1, G-1) = F(1, 1): q = 1, G = 2)
+				if !strings.Contains(string(rep), "| Wald: a (p of F(1, 1) = ") {
 					t.Errorf("report.md lacks the Wald test of a")
+				}
+			}},
+		{id: "W19", name: "a model with more parameters than the clusters less one under clustered errors", args: []string{"check"}, setup: clusterData,
+			plan: edit("file: d.csv", "file: clu.csv\n  cluster: five", "tests: {parallel_lines: [lr]}", "tests: {parallel_lines: [wald]}",
+				"rules:\n  - reject_unconverged: true", "covariance: clustered\nrules:\n  - reject_unconverged: true\n  - reject_if_test_rejects: {test: wald, alpha: 0.05}"), code: 0,
+			want: []string{"plan is valid"},
+			check: func(t *testing.T, dir, out, errs string) {
+				w := `W19.yaml: outcome y: data.cluster: column "five" holds 5 clusters in the 120 rows used, and cumulative/nonparallel/logit (6 parameters) and stage/nonparallel/logit (6 parameters) have more than G-1 = 4: a cluster-robust covariance from G clusters has rank at most G-1, so such a model's covariance is singular`
+				if !strings.Contains(errs, w) {
+					t.Errorf("check does not warn of the singular covariance:\n%s", errs)
+				}
+				outDir := filepath.Join(dir, "W19-out")
+				_, e, code := runCLI("run", filepath.Join(dir, "W19.yaml"), "--out", outDir, "--quiet")
+				dec, _ := os.ReadFile(filepath.Join(outDir, "decisions.json"))
+				rep, _ := os.ReadFile(filepath.Join(outDir, "report.md"))
+				verdict := "the Wald test against cumulative/nonparallel/logit cannot be computed (cumulative/nonparallel/logit: its 6 parameters exceed G-1 = 4: the cluster-robust covariance from G = 5 clusters has rank at most G-1, so it is singular; no rule reads a Wald test made from it)"
+				if code != 0 || !strings.Contains(e, w) || !strings.Contains(string(dec), verdict) || !strings.Contains(string(rep), verdict) || !strings.Contains(string(rep), strings.TrimPrefix(w, "W19.yaml: outcome y: ")) {
+					t.Errorf("run (exit %d) does not warn on stderr, or the rule's verdict lacks the reason:\n%s", code, e)
 				}
 			}},
 		{id: "W11", name: "few_clusters without clustered errors", args: []string{"check"},
@@ -1448,7 +1467,7 @@ func catalogue(dir string) (items []badInput) {
 				rep, _ := os.ReadFile(filepath.Join(outDir, "report.md"))
 				why := `cumulative/nonparallel/logit: jackknife covariance: without cluster \"p\" (`
 				for _, w := range []string{`"error": "` + why, `the refit has no usable maximum (no_finite_maximum: no finite maximum likelihood estimate`, `the delete-one-cluster jackknife needs every refit at a maximum, so it is not computed`, `"correction": "jackknife"`, `"reference_df": 3`,
-					`data.cluster: column \"site\" holds 4 clusters in the 120 rows used, fewer than 40: as asked (few_clusters: jackknife), standard errors are the delete-one-cluster jackknife (each model refitted 4 times, once without each cluster), single estimates and intervals refer to t on G-1 = 3 degrees of freedom and joint Wald tests to F(q, 3)`} {
+					`data.cluster: column \"site\" holds 4 clusters in the 120 rows used, fewer than 40: as asked (few_clusters: jackknife), standard errors are the delete-one-cluster jackknife (each model refitted 4 times, once without each cluster), single estimates and intervals refer to t on G-1 = 3 degrees of freedom and joint Wald tests of q restrictions to F(q, 4-q)`} {
 					if !strings.Contains(string(dec), w) {
 						t.Errorf("decisions.json lacks %s", w)
 					}

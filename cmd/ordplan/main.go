@@ -255,7 +255,7 @@ func defineFitFlags(fs *flag.FlagSet) *fitFlags {
 	fs.TextVar(&f.approach, "approach", fit.Cumulative, "how categories are compared: "+fit.ComparisonWords.OrList())
 	fs.TextVar(&f.link, "link", fit.Logit, "link: "+fit.LinkWords.OrList())
 	fs.TextVar(&f.covariance, "covariance", fit.Observed, "standard errors: observed (information), expected (information), sandwich (HC1), sandwich_plain (HC0) or clustered (CR1)")
-	fs.TextVar(&f.fewClusters, "few-clusters", fit.NoCorrection, "with --covariance clustered, a correction for few clusters: none, or jackknife (the delete-one-cluster jackknife covariance, the model refitted without each cluster in turn, with t and F references on G-1 degrees of freedom)")
+	fs.TextVar(&f.fewClusters, "few-clusters", fit.NoCorrection, "with --covariance clustered, a correction for few clusters: none, or jackknife (the delete-one-cluster jackknife covariance, the model refitted without each cluster in turn; with either, t references on G-1 degrees of freedom and F(q, G-q) for a joint Wald test of q restrictions)")
 	return f
 }
 

@@ -160,7 +160,7 @@ func TestCheckWarnsOfRulesIgnoringClusters(t *testing.T) {
 	}
 	for _, w := range []string{
 		"warning: " + filepath.Join(dir, "p.yaml") + ": models.partial.select: the stepwise selection by likelihood-ratio tests takes every observation as independent",
-		"warning: " + filepath.Join(dir, "p.yaml") + ": rules[0].reject_if_test_rejects (line 8): The likelihood-ratio test takes every observation as independent: it ignores the clusters of c",
+		"warning: " + filepath.Join(dir, "p.yaml") + ": rules[0].reject_if_test_rejects (line 8): The likelihood-ratio test compares the two models' likelihoods, which take every observation as independent: it ignores the clusters of c, holds its level when they do not matter and rejects too often when observations of a cluster are alike. A Wald test would use the cluster-robust covariance instead, referred to F(q, G-q)",
 		"rules[2].prefer_simpler (line 10): BIC takes every observation as independent",
 	} {
 		if !strings.Contains(stderr, w) {
@@ -170,7 +170,7 @@ func TestCheckWarnsOfRulesIgnoringClusters(t *testing.T) {
 	if strings.Contains(stderr, "rules[1]") {
 		t.Errorf("check warns of the Wald rule, which uses the cluster-robust covariance:\n%s", stderr)
 	}
-	if !strings.Contains(stdout, "The likelihood-ratio test takes every observation as independent") {
+	if !strings.Contains(stdout, "The likelihood-ratio test compares the two models' likelihoods, which take every observation as independent") {
 		t.Errorf("the rule's description lacks the caveat:\n%s", stdout)
 	}
 	if _, stderr, _ := runCLI("check", plan("clustered", "  - choose: {by: tic}\n")); !strings.Contains(stderr, "rules[0].choose (line 8): TIC's penalty is made of each row's scores, as if every observation were independent: the clusters of c") {

@@ -41,14 +41,15 @@ func (c Covariance) IsSandwich() bool {
 // ClusterCorrection is a correction of cluster-robust inference for few
 // clusters (covariance: clustered): none (the CR1 sandwich with normal and
 // chi-square references), or the delete-one-cluster jackknife covariance
-// (ClusterJackknife) with t and F references on G-1 degrees of freedom
-// (Result.RefDF).
+// (ClusterJackknife). Either takes the references of a cluster-robust
+// covariance: t on G-1 degrees of freedom (Result.RefDF) and
+// ClusterJointReference.
 type ClusterCorrection int
 
 // The corrections.
 const (
 	NoCorrection ClusterCorrection = iota // the cluster-robust sandwich, normal and chi-square references
-	Jackknife                             // delete-one-cluster jackknife, t(G-1) and F(q, G-1) references
+	Jackknife                             // delete-one-cluster jackknife (t(G-1) and F(q, G-q) references, as the clustered sandwich)
 )
 
 // ClusterCorrectionWords is the vocabulary of the corrections, in the
@@ -69,10 +70,15 @@ func (c *ClusterCorrection) UnmarshalText(b []byte) (err error) {
 // JackknifeDescribe says in one sentence how the delete-one-cluster
 // jackknife covariance is computed and which references its inference
 // takes (the covariance's Describe under the correction).
-const JackknifeDescribe = "delete-one-cluster jackknife: the model refitted without each cluster in turn, from the full fit's estimates, V = (G-1)/G sum_g (b_(g) - b_mean)(b_(g) - b_mean)' with G clusters; single estimates, intervals and p-values refer to t on G-1 degrees of freedom, a joint Wald statistic W of q restrictions as W/q to F(q, G-1)"
+const JackknifeDescribe = `delete-one-cluster jackknife: the model refitted without each cluster in turn, from the full fit's estimates, V = (G-1)/G sum_g (b_(g) - b_mean)(b_(g) - b_mean)' with G clusters; single estimates, intervals and p-values refer to t on G-1 degrees of freedom, ` + ClusterJointReference
+
+// ClusterJointReference says how a joint Wald test on a cluster-robust
+// covariance (the clustered sandwich or the jackknife) is referred
+// (Result.waldTest).
+const ClusterJointReference = "a joint Wald statistic W of q restrictions as W (G-q)/((G-1) q) to F(q, G-q) (Hotelling's T-squared approximation for a covariance estimated from G cluster sums; q >= G restrictions are not tested)"
 
 // JackknifeLabel names the jackknife covariance for a compact table.
-const JackknifeLabel = "delete-one-cluster jackknife ((G-1)/G sum of squared deviations of the refits; t and F on G-1 df)"
+const JackknifeLabel = "delete-one-cluster jackknife ((G-1)/G sum of squared deviations of the refits; t on G-1 df, F(q, G-q))"
 
 // covarianceText describes each covariance kind at three lengths, in the
 // order of the constants: how it is computed (a report's sentence), a

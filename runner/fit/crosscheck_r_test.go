@@ -363,7 +363,12 @@ func (a *agreement) sandwiches(label string, d *fit.Data, r *fit.Result, cluster
 		case c.clusters == nil:
 			V, _, err = fit.SandwichEstimate(d, r, fit.Sandwich, nil, sampling)
 		default:
-			V, _, err = fit.SandwichEstimate(d, r, fit.Clustered, c.clusters, sampling)
+			var info fit.SandwichInfo
+			V, info, err = fit.SandwichEstimate(d, r, fit.Clustered, c.clusters, sampling)
+			if err == nil {
+				// Every slope of the fit (its parameters after the first).
+				a.clusterWald(label+" "+c.name, r, V, info, len(r.Estimates)-1, vals, prefix+".clustered")
+			}
 		}
 		if err != nil {
 			a.t.Fatalf("%s %s: %v", label, c.name, err)
@@ -467,6 +472,7 @@ func (a *agreement) fewClusters(label string, d *fit.Data, r *fit.Result, cluste
 	if !two.OK || three.OK || !strings.Contains(three.Reason, "3 restrictions need at least 4 clusters") {
 		t.Errorf("%s: Wald tests of 2 restrictions %+v, of 3 %+v", label, two, three)
 	}
+	a.clusterWald(label+" clustered by education (3 clusters)", r, V, info, 2, vals, prefix+".clustered3")
 }
 
 // jackknife checks the delete-one-cluster jackknife covariance of fit r
@@ -484,8 +490,24 @@ func (a *agreement) jackknife(label string, d *fit.Data, r *fit.Result, clusters
 		t.Fatalf("%s: %v", label, err)
 	}
 	a.cov(label+" jackknife (glm refits)", r.ParamNames, V, vals.Get(t, prefix))
-	if info.DF != float64(info.Clusters-1) || info.Correction != fit.Jackknife {
-		t.Errorf("%s: %d clusters, reference df %g, correction %s", label, info.Clusters, info.DF, info.Correction)
+	if info.Correction != fit.Jackknife {
+		t.Errorf("%s: correction %s", label, info.Correction)
+	}
+	a.clusterWald(label+" jackknife", r, V, info, 2, vals, prefix)
+}
+
+// clusterWald checks the references of a cluster-robust covariance V
+// (the clustered sandwich or the jackknife, info from its estimator) of
+// fit r against R's (printclusterwald in common.R, under prefix): each
+// estimate's two-sided p-value on t(G-1) against R's pt, and the Wald test
+// that the q slopes after the intercept are 0 (parameters 2 to q+1), its
+// statistic W and the p-value of W (G-q)/((G-1) q) on F(q, G-q) against
+// R's pf.
+func (a *agreement) clusterWald(label string, r *fit.Result, V []float64, info fit.SandwichInfo, q int, vals rscript.Values, prefix string) {
+	t := a.t
+	t.Helper()
+	if info.DF != float64(info.Clusters-1) {
+		t.Errorf("%s: %d clusters, reference df %g", label, info.Clusters, info.DF)
 	}
 	rc := *r
 	rc.UseCovariance(V, info)
@@ -493,15 +515,19 @@ func (a *agreement) jackknife(label string, d *fit.Data, r *fit.Result, clusters
 		a.stat(fmt.Sprintf("%s %s: p-value on t(%g) (R's pt)", label, r.ParamNames[i], info.DF), rc.ParamInference(i, 0.95).P, want)
 	}
 	P := len(r.Estimates)
-	rows := [][]float64{make([]float64, P), make([]float64, P)}
-	rows[0][1], rows[1][2] = 1, 1
-	w := fit.WaldLinear(&rc, &fit.Hypothesis{R: rows, C: []float64{0, 0}})
+	rows := make([][]float64, q)
+	for i := range rows {
+		rows[i] = make([]float64, P)
+		rows[i][i+1] = 1
+	}
+	w := fit.WaldLinear(&rc, &fit.Hypothesis{R: rows, C: make([]float64, q)})
 	want := vals.Get(t, prefix+"_wald")
-	if !w.OK || !w.FRef || w.DF != 2 || w.DF2 != info.DF {
+	G := info.DF + 1
+	if !w.OK || !w.FRef || w.DF != q || w.DF2 != G-float64(q) {
 		t.Fatalf("%s: Wald test %+v", label, w)
 	}
-	a.stat(label+" jackknife Wald statistic", w.Chi2, want[0])
-	a.stat(fmt.Sprintf("%s jackknife Wald p-value on F(2, %g) (R's pf)", label, info.DF), w.P, want[1])
+	a.stat(label+" Wald statistic", w.Chi2, want[0])
+	a.stat(fmt.Sprintf("%s Wald p-value of W (G-q)/((G-1) q) on F(%d, %g) (R's pf)", label, q, w.DF2), w.P, want[1])
 }
 
 // testRFarFromZero: a predictor near 1e6 with a spread of about 1 (the

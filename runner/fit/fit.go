@@ -181,12 +181,17 @@ type Result struct {
 	DF []float64
 	// RefDF, when above 0, is the degrees of freedom of the reference of
 	// every quantity made from the covariance of a fit of one data set:
-	// G-1 under the delete-one-cluster jackknife (ClusterJackknife, set
-	// by UseCovariance). A single estimate, contrast or marginal effect
-	// then refers to t on RefDF degrees of freedom, a joint Wald statistic
-	// W of q restrictions as W/q to F(q, RefDF) (waldTest). 0: normal and
-	// chi-square.
+	// G-1 under a cluster-robust covariance of G clusters (the clustered
+	// sandwich, SandwichEstimate, or the delete-one-cluster jackknife,
+	// ClusterJackknife; set by UseCovariance). A single estimate, contrast
+	// or marginal effect then refers to t on RefDF degrees of freedom, a
+	// joint Wald statistic W of q restrictions as W (G-q)/((G-1) q) to
+	// F(q, G-q) (waldTest). 0: normal and chi-square.
 	RefDF float64
+	// Correction is the few-cluster correction of the covariance
+	// (Jackknife: the delete-one-cluster jackknife; NoCorrection for the
+	// clustered sandwich and any other).
+	Correction ClusterCorrection
 
 	Cutpoints []float64   // tau_1..tau_{J-1}
 	Effects   [][]float64 // [m][k]: slope of predictor k in equation m

@@ -308,7 +308,7 @@ func (r *Result) CheckScale() {
 		if err != nil {
 			continue
 		}
-		nz.Test = chi2Test(TestWald.String(), x, len(R))
+		nz.Test = r.waldTest(x, len(R))
 		if !(nz.Test.P >= ScaleNearZeroLevel) {
 			continue
 		}

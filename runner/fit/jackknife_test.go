@@ -140,11 +140,12 @@ func TestJackknifeReferences(t *testing.T) {
 	}
 	h := mustHypothesis(t, "x1 = 0; x2 = 0", r.ParamNames)
 	w := WaldLinear(r, h)
-	if !w.OK || !w.FRef || w.DF != 2 || w.DF2 != G-1 {
+	// Referred as W (G-q)/((G-1) q) to F(q, G-q) (waldTest).
+	if !w.OK || !w.FRef || w.DF != 2 || w.DF2 != G-2 || math.Abs(w.F-w.Chi2*(G-2)/((G-1)*2)) > 1e-12*w.F || w.Reference != "F(2, 4)" {
 		t.Fatalf("Wald test %+v", w)
 	}
-	if want := fTail(w.Chi2/2, 2, G-1); math.Abs(w.P-want) > 1e-7*want {
-		t.Errorf("Wald p-value %.12g, F(2, %d) tail by integration %.12g", w.P, G-1, want)
+	if want := fTail(w.F, 2, G-2); math.Abs(w.P-want) > 1e-7*want {
+		t.Errorf("Wald p-value %.12g, F(2, %d) tail by integration %.12g", w.P, G-2, want)
 	}
 	// G-1 = 5 restrictions are tested, 6 are refused.
 	all := identityRows(len(r.Estimates))

@@ -100,22 +100,35 @@ type Test struct {
 	// Warning is what the pooling rule says of a test it computed
 	// (D3: a negative between-imputation part set to 0).
 	Warning string `json:"warning,omitempty"`
-	// FRef: a Wald test on a delete-one-cluster jackknife covariance
-	// (Result.RefDF): Chi2/DF is referred to F(DF, DF2), DF2 = G-1.
-	FRef bool `json:"f_reference,omitempty"`
+	// FRef: a Wald test on a cluster-robust covariance of G clusters (the
+	// clustered sandwich or the delete-one-cluster jackknife; Result.RefDF
+	// = G-1): F = Chi2 (G-q)/((G-1) q), q = DF, is referred to F(DF, DF2),
+	// DF2 = G-q (waldTest); Reference names that distribution.
+	FRef      bool    `json:"f_reference,omitempty"`
+	F         float64 `json:"f,omitempty"`
+	Reference string  `json:"reference,omitempty"`
 }
 
 // waldTest is the test of a Wald statistic x of q restrictions in fit r:
-// chi-square on q degrees of freedom, or, when r's references have finite
-// degrees of freedom (RefDF: G-1 under the delete-one-cluster jackknife),
-// x/q referred to F(q, RefDF). The one reference of every Wald test made
-// from a fit's covariance.
+// chi-square on q degrees of freedom, or, on a cluster-robust covariance of
+// G clusters (RefDF = G-1 > 0, a fit of one data set), x (G-q)/((G-1) q)
+// referred to F(q, G-q): the approximation of Hotelling's T-squared for a
+// covariance estimated from G cluster sums (docs/models.md). With q = 1 it
+// is x on F(1, G-1), the square of the t(G-1) of a single estimate
+// (referenceDF). The one reference of every Wald test made from a fit's
+// covariance; q >= G is refused before (waldDefined).
 func (r *Result) waldTest(x float64, q int) Test {
 	if r.RefDF <= 0 || r.DF != nil {
 		return chi2Test(TestWald.String(), x, q)
 	}
-	t := Test{Name: TestWald.String(), OK: true, Chi2: x, DF: q, DF2: r.RefDF, FRef: true}
-	t.P = FSurvival(x/float64(q), q, r.RefDF)
+	df2 := r.RefDF + 1 - float64(q) // G-q
+	if df2 < 1 {
+		return failedTest(TestWald.String(), "%d restrictions need at least %d clusters, and the data have %g: a cluster-robust covariance from G clusters has rank at most G-1", q, q+1, r.RefDF+1)
+	}
+	f := x * df2 / (r.RefDF * float64(q))
+	t := Test{Name: TestWald.String(), OK: true, Chi2: x, DF: q, DF2: df2, FRef: true, F: f,
+		Reference: fmt.Sprintf("F(%d, %s)", q, strconv.FormatFloat(df2, 'f', -1, 64))}
+	t.P = FSurvival(f, q, df2)
 	return t
 }
 

@@ -18,7 +18,8 @@ type SandwichInfo struct {
 	Trace float64 `json:"-"`
 	// Correction is the few-cluster correction the covariance makes
 	// (Jackknife: ClusterJackknife), and DF the degrees of freedom of its
-	// t and F references (G-1; 0 for the normal and chi-square).
+	// t references, G-1 for any cluster-robust covariance (the clustered
+	// sandwich and the jackknife; 0 for the normal and chi-square).
 	Correction ClusterCorrection `json:"correction,omitempty"`
 	DF         float64           `json:"reference_df,omitempty"`
 }
@@ -166,6 +167,7 @@ func sandwich(d *Data, r *Result, clusters []string, probability, factor bool) (
 			return nil, info, fmt.Errorf("cluster-robust errors need at least 2 clusters, got %d", info.Clusters)
 		}
 		info.Factor = G / (G - 1) * (N - 1) / (N - float64(P))
+		info.DF = G - 1
 		info.Formula = "A^-1 B A^-1, B = sum over clusters of the summed weighted scores' outer products, times G/(G-1) (N-1)/(N-P)"
 	default:
 		info.Factor = N / (N - float64(P))
@@ -217,6 +219,7 @@ func (r *Result) UseCovariance(V []float64, info SandwichInfo) {
 	r.CovType = info.Type
 	r.Clusters = info.Clusters
 	r.RefDF = info.DF
+	r.Correction = info.Correction
 	r.StdErrors = make([]float64, P)
 	for i := 0; i < P; i++ {
 		r.StdErrors[i] = math.Sqrt(math.Max(V[i*P+i], 0))
@@ -227,9 +230,8 @@ func (r *Result) UseCovariance(V []float64, info SandwichInfo) {
 // FewClusters is the number of clusters below which cluster-robust errors
 // are flagged (runner's Analysis.FewClusters): with fewer, the sandwich of summed
 // cluster scores is biased downward even with the factor G/(G-1), and its
-// z and Wald tests, referred to the normal and chi-square, reject a true
-// hypothesis too often (docs/models.md, "Sandwich and cluster-robust
-// errors", says why 40).
+// tests reject a true hypothesis too often even on t(G-1) and F(q, G-q)
+// (docs/models.md, "Sandwich and cluster-robust errors", says why 40).
 const FewClusters = 40
 
 // ClusterJackknife returns the delete-one-cluster jackknife covariance of

@@ -106,3 +106,25 @@ func (r *Result) WaldDefined(R [][]float64) error {
 	}
 	return waldDefined(restrictedCov(R, r.Cov, P), r.Clusters)
 }
+
+// SingularClustered says why the cluster-robust covariance of fit r is
+// singular, or returns "": from G clusters its rank is at most G-1, so a
+// model of P > G-1 parameters has combinations of its estimates with no
+// estimated variance. A Wald test of fewer restrictions may still be
+// made from it, but a decision rule does not read one (runner's
+// judgeTest), and check, run and the report say so (runner's
+// Analysis.SingularModels).
+func (r *Result) SingularClustered() string {
+	P := len(r.Estimates)
+	if !SingularCovariance(P, r.Clusters) {
+		return ""
+	}
+	return fmt.Sprintf("its %d parameters exceed G-1 = %d: the cluster-robust covariance from G = %d clusters has rank at most G-1, so it is singular", P, r.Clusters-1, r.Clusters)
+}
+
+// SingularCovariance reports whether a cluster-robust covariance from G
+// clusters (clusters; 0 for any other covariance) of a model of P
+// parameters is singular: P > G-1.
+func SingularCovariance(P, clusters int) bool {
+	return clusters > 0 && P > clusters-1
+}

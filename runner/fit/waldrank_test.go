@@ -282,9 +282,10 @@ func TestFewClustersRejectTooOften(t *testing.T) {
 // TestFewClustersJointTest measures the rejection rate at 5% of a joint
 // Wald test of two slopes whose true values are 0, on data made as
 // TestFewClustersRejectTooOften's with two predictors x1, x2 (each v_g + e):
-// the cluster-robust (CR1) statistic on chi-square(2), and the
-// delete-one-cluster jackknife's W/2 on F(2, G-1) (WaldLinear, as a run
-// with few_clusters: jackknife makes it). 1000 data sets per G; run only
+// the cluster-robust (CR1) statistic on chi-square(2) and the
+// delete-one-cluster jackknife's W/2 on F(2, G-1) (the references used
+// before), and each as a run makes it (WaldLinear): W (G-2)/((G-1) 2) on
+// F(2, G-2). 1000 data sets per G; run only
 // with ORDPLAN_CLUSTERS_LONG=1 (docs/models.md quotes the rates).
 func TestFewClustersJointTest(t *testing.T) {
 	if os.Getenv("ORDPLAN_CLUSTERS_LONG") == "" {
@@ -293,7 +294,7 @@ func TestFewClustersJointTest(t *testing.T) {
 	rng := rand.New(rand.NewPCG(20261204, 41))
 	const m, reps = 30, 1000
 	for _, G := range []int{5, 10, 20} {
-		chi, jack, made := 0, 0, 0
+		chi, chiF, jackOld, jack, made := 0, 0, 0, 0, 0
 		for rep := 0; rep < reps; rep++ {
 			d, clusters := fewClusterData(rng, G, m, "x1", "x2")
 			r, err := Fit(d, robModel(Cumulative, false, Logit, 2, Parallel), Options{Workers: 1})
@@ -312,19 +313,30 @@ func TestFewClustersJointTest(t *testing.T) {
 			made++
 			rc := *r
 			rc.UseCovariance(V, info)
-			if w := WaldLinear(&rc, h); w.OK && w.P < 0.05 {
-				chi++
+			if w := WaldLinear(&rc, h); w.OK {
+				if ChiSquareP(w.Chi2, 2) < 0.05 {
+					chi++
+				}
+				if w.P < 0.05 {
+					chiF++
+				}
 			}
 			r.UseCovariance(J, jinfo)
-			if w := WaldLinear(r, h); w.OK && w.P < 0.05 {
-				jack++
+			if w := WaldLinear(r, h); w.OK {
+				if FSurvival(w.Chi2/2, 2, float64(G-1)) < 0.05 {
+					jackOld++
+				}
+				if w.P < 0.05 {
+					jack++
+				}
 			}
 		}
 		if made < reps/2 {
 			t.Fatalf("G = %d: only %d of %d data sets gave both covariances", G, made, reps)
 		}
-		t.Logf("G = %2d: of %d data sets, CR1 Wald on chi2(2) rejected %d (%.1f%%), jackknife W/2 on F(2, G-1) %d (%.1f%%)",
-			G, made, chi, 100*float64(chi)/float64(made), jack, 100*float64(jack)/float64(made))
+		pc := func(k int) float64 { return 100 * float64(k) / float64(made) }
+		t.Logf("G = %2d: of %d data sets rejected: CR1 Wald on chi2(2) %d (%.1f%%), CR1 W (G-2)/((G-1) 2) on F(2, G-2) %d (%.1f%%); jackknife W/2 on F(2, G-1) %d (%.1f%%), jackknife on F(2, G-2) %d (%.1f%%)",
+			G, made, chi, pc(chi), chiF, pc(chiF), jackOld, pc(jackOld), jack, pc(jack))
 		if jack >= chi {
 			t.Errorf("G = %d: the jackknife's F test rejects %d, CR1's chi-square %d", G, jack, chi)
 		}

@@ -155,17 +155,24 @@ jackknife <- function(Z, sgn, e, w, link, cluster) {
   (G - 1) / G * crossprod(Dv)
 }
 
-# printjackknife prints the jackknife covariance V of theta from G clusters,
-# the two-sided p-values of each theta_j / sqrt(V_jj) on t(G-1), and the
-# Wald statistic W of theta_j = 0 for the parameters in `joint` with the
-# p-value of W/q on F(q, G-1).
-printjackknife <- function(prefix, theta, V, G, joint) {
-  out(prefix, V)
+# printclusterwald prints, for a cluster-robust covariance V of theta from
+# G clusters (the clustered sandwich or the jackknife), the two-sided
+# p-values of each theta_j / sqrt(V_jj) on t(G-1), and the Wald statistic W
+# of theta_j = 0 for the parameters in `joint` (q of them) with the p-value
+# of W (G-q)/((G-1) q) on F(q, G-q) (Hotelling's T-squared approximation).
+printclusterwald <- function(prefix, theta, V, G, joint) {
   out(paste0(prefix, "_p"), 2 * pt(-abs(theta / sqrt(diag(V))), G - 1))
   b <- theta[joint]
   W <- drop(t(b) %*% solve(V[joint, joint], b))
   q <- length(joint)
-  out(paste0(prefix, "_wald"), c(W, pf(W / q, q, G - 1, lower.tail = FALSE)))
+  out(paste0(prefix, "_wald"), c(W, pf(W * (G - q) / ((G - 1) * q), q, G - q, lower.tail = FALSE)))
+}
+
+# printjackknife prints the jackknife covariance V of theta from G clusters
+# and its tests (printclusterwald).
+printjackknife <- function(prefix, theta, V, G, joint) {
+  out(prefix, V)
+  printclusterwald(prefix, theta, V, G, joint)
 }
 
 # printfit prints a binary fit under prefix: theta, the log-likelihoods, the

@@ -11,8 +11,10 @@
 #    delete-one-cluster jackknife covariance (jackknife in common.R: glm
 #    refitted without each cluster) with the 3 education groups and with
 #    the matched sets dealt into 10 clusters by stratum modulo 10 (set10),
-#    with p-values on t(G-1) and a Wald test of age = parity = 0 on
-#    F(2, G-1). Exported to infert.csv.
+#    with p-values on t(G-1) and a Wald test of age = parity = 0 referred
+#    as W (G-2)/((G-1) 2) to F(2, G-2); the same references on the
+#    cluster-robust sandwich by education (age = parity = 0) and by matched
+#    set (every slope 0, F(4, G-4)). Exported to infert.csv.
 # 2. sim2.csv, written by the Go test (seeded simulation): outcome y (1, 2),
 #    predictors x1, x2, sampling weights sw, clusters g.
 
@@ -32,6 +34,8 @@ for (link in links) {
   out(paste0("infert.", link, ".clustered3"), V3)
   ev <- eigen(cov2cor(V3), symmetric = TRUE, only.values = TRUE)$values
   out(paste0("infert.", link, ".clustered3_rank"), sum(ev > 1e-10 * max(ev)))
+  printclusterwald(paste0("infert.", link, ".clustered3"), b$theta, V3, 3, 2:3)
+  printclusterwald(paste0("infert.", link, ".clustered"), b$theta, sandwich(b, FALSE, inf$stratum), length(unique(inf$stratum)), 2:5)
   for (cl in c("education", "set10")) {
     V <- jackknife(Z, sgn, as.numeric(inf$y == 1), rep(1, nrow(inf)), link, inf[[cl]])
     printjackknife(paste0("infert.", link, ".jack_", cl), b$theta, V, length(unique(inf[[cl]])), 2:3)
@@ -45,6 +49,7 @@ for (link in links) {
   b <- binfit(Z, sgn, as.numeric(sim$y == 1), sim$sw, link)
   printfit(paste0("sim2.", link), b)
   printsandwiches(paste0("sim2.", link), b, TRUE, sim$g)
+  printclusterwald(paste0("sim2.", link, ".clustered"), b$theta, sandwich(b, TRUE, sim$g), length(unique(sim$g)), 2:3)
   V <- jackknife(Z, sgn, as.numeric(sim$y == 1), sim$sw, link, sim$g)
   printjackknife(paste0("sim2.", link, ".jack_g"), b$theta, V, length(unique(sim$g)), 2:3)
 }
