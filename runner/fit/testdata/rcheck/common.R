@@ -186,11 +186,14 @@ printfit <- function(prefix, b) {
 }
 
 # printsandwiches prints the four sandwich covariances (row-major; they are
-# symmetric) of a binary fit.
+# symmetric) of a binary fit, and the references of the clustered one
+# (printclusterwald: every slope 0).
 printsandwiches <- function(prefix, b, sampling, cluster) {
   out(paste0(prefix, ".sandwich"), sandwich(b, sampling))
   out(paste0(prefix, ".sandwich_plain"), sandwich(b, sampling, plain = TRUE))
   out(paste0(prefix, ".clustered"), sandwich(b, sampling, cluster))
+  printclusterwald(paste0(prefix, ".clustered"), b$theta, sandwich(b, sampling, cluster),
+    length(unique(cluster)), 2:length(b$theta))
   out(paste0(prefix, ".clustered_plain"), sandwich(b, sampling, cluster, plain = TRUE))
 }
 

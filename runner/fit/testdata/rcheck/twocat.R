@@ -35,7 +35,6 @@ for (link in links) {
   ev <- eigen(cov2cor(V3), symmetric = TRUE, only.values = TRUE)$values
   out(paste0("infert.", link, ".clustered3_rank"), sum(ev > 1e-10 * max(ev)))
   printclusterwald(paste0("infert.", link, ".clustered3"), b$theta, V3, 3, 2:3)
-  printclusterwald(paste0("infert.", link, ".clustered"), b$theta, sandwich(b, FALSE, inf$stratum), length(unique(inf$stratum)), 2:5)
   for (cl in c("education", "set10")) {
     V <- jackknife(Z, sgn, as.numeric(inf$y == 1), rep(1, nrow(inf)), link, inf[[cl]])
     printjackknife(paste0("infert.", link, ".jack_", cl), b$theta, V, length(unique(inf[[cl]])), 2:3)
@@ -49,7 +48,6 @@ for (link in links) {
   b <- binfit(Z, sgn, as.numeric(sim$y == 1), sim$sw, link)
   printfit(paste0("sim2.", link), b)
   printsandwiches(paste0("sim2.", link), b, TRUE, sim$g)
-  printclusterwald(paste0("sim2.", link, ".clustered"), b$theta, sandwich(b, TRUE, sim$g), length(unique(sim$g)), 2:3)
   V <- jackknife(Z, sgn, as.numeric(sim$y == 1), sim$sw, link, sim$g)
   printjackknife(paste0("sim2.", link, ".jack_g"), b$theta, V, length(unique(sim$g)), 2:3)
 }
