@@ -94,7 +94,7 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	if res.DF != nil {
 		d.p("Pooled over the imputed sets, z is the quantile of t on the Barnard-Rubin degrees of freedom of b (of the smallest among b_m's parameters for a constrained predictor), as for the estimates.")
 	}
-	if res.RefDF > 0 {
+	if res.RefDF > 0 && res.DF == nil {
 		d.p("With cluster-robust errors from G = %d clusters, z is the quantile of t on G-1 = %s degrees of freedom, as for the estimates.", res.Clusters, numfmt.Num(res.RefDF))
 	}
 	if where {

@@ -30,8 +30,12 @@ func writeTests(d *doc, or *runner.OutcomeResult) {
 		d.h(4, tb.Approach.String()+", "+tb.Link.String())
 		var rows [][]string
 		var warned poolingWarnings
+		var fG float64 // G of the tests referred to F on a cluster-robust covariance
 		row := func(label string, t fit.Test) []string {
 			warned.add(label, t)
+			if t.FRef {
+				fG = t.DF2 + float64(t.DF)
+			}
 			return testRow(label, t)
 		}
 		for _, t := range tb.Global {
@@ -44,6 +48,12 @@ func writeTests(d *doc, or *runner.OutcomeResult) {
 		}
 		if len(rows) > 0 {
 			d.captioned(fmt.Sprintf("Parallel-lines tests, %s %s", tb.Approach, tb.Link)).table([]string{"Test", "Chi-square", "df", "p"}, rows)
+		}
+		if fG > 0 {
+			d.p("A Wald test on the cluster-robust covariance shows its statistic W (column Chi-square) and its q restrictions (df); its p-value is that of F = W (G-q)/((G-1) q) on F(q, G-q), G = %s clusters, shown beside its name.", numfmt.Num(fG))
+			if np := or.Cell(tb.Approach, fit.NonparallelEffects, tb.Link); np != nil && np.Result != nil && np.Result.SingularClustered() != "" {
+				d.p("**The Wald tests above are made in %s, whose cluster-robust covariance is singular:** %s. Read them with that in mind; no decision rule reads them.", np.ID, np.Result.SingularClustered())
+			}
 		}
 		rows = nil
 		for _, nt := range tb.Nested {
@@ -96,7 +106,7 @@ func fReference(t fit.Test) string {
 	if !t.FRef {
 		return ""
 	}
-	return " (p of " + runner.TestStatistic(t) + ")"
+	return fmt.Sprintf(" (p of F(%d, %s) = %s)", t.DF, numfmt.Num(t.DF2), numfmt.Stat(t.F))
 }
 
 func testLabel(n string) string {

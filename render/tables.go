@@ -281,7 +281,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	}
 	if len(or.TermTests) > 0 {
 		about := "the Wald and likelihood-ratio tests of each term of the chosen model (tested_with: the interactions containing the term, tested with it; restricted_model: the refit without them; on imputed data chi2 is df x F, p from F(df, df2), df2 empty when infinite; note: why a test was not computed)"
-		if or.Chosen.Result.RefDF > 0 {
+		if or.Chosen.Result.RefDF > 0 && or.Chosen.Result.DF == nil {
 			about = strings.TrimSuffix(about, ")") + "; on the cluster-robust covariance of G clusters a Wald chi2 is referred as chi2 (G-df)/((G-1) df) to F(df, df2), df2 = G-df, and note says so)"
 		}
 		add("term-tests", about, termTestHead, termTestRows(or))

@@ -751,6 +751,9 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 	}
 	or.Fits = jobs
 	run.Fits = perSet
+	if w := an.SingularModels(r, &ds, jobs, len(ds.Categories), allColumns(or.Terms)); w != "" {
+		or.Notes = append(or.Notes, w)
+	}
 	for _, a := range an.Models.Approaches {
 		for _, l := range an.Models.Links {
 			or.Tests = append(or.Tests, pooledTestBlock(an, or, perSet, a, l))
@@ -769,8 +772,16 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 		return nil, err
 	}
 	or.Notes = append(or.Notes, imputedNotes(run.M, an.Errors.Sampling)...)
+	if an.Errors.Covariance == fit.Clustered {
+		or.Notes = append(or.Notes, ImputedClusterNote)
+	}
 	return or, nil
 }
+
+// ImputedClusterNote says which references the clustered errors take on
+// imputed data: Rubin's rules', not those of a cluster-robust covariance
+// of one data set (fit.Result.waldTest), which the pooling does not carry.
+const ImputedClusterNote = "With clustered errors on imputed data, the pooled estimates, intervals and Wald tests (D1) refer to t and F on the Barnard-Rubin degrees of freedom of Rubin's rules, not to t on G-1 and F(q, G-q) as on one data set: the pooling does not allow for the few clusters the covariance is estimated from, so with q restrictions not small against G clusters a pooled Wald test rejects a true hypothesis too often"
 
 // imputedNotes are the notes of an outcome analysed on m imputed sets.
 // Under sampling weights no likelihood-based statistic is a test, so
