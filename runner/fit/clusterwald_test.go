@@ -152,3 +152,39 @@ func TestClusteredWaldStudy(t *testing.T) {
 		t.Errorf("rates: chi2 %.1f%%, F %.1f%%", rate(chi2Rej), rate(fRej))
 	}
 }
+
+// TestStepwiseSkipsSingularClustered: a step of stepwise selection by Wald
+// tests reads no test made from a singular cluster-robust covariance (a
+// model of more than G-1 parameters, SingularClustered): with 8 clusters
+// the nonparallel start (12 parameters) has none, so every candidate is
+// passed over with the reason and none is made parallel.
+func TestStepwiseSkipsSingularClustered(t *testing.T) {
+	d := clusteredData(t)
+	clusters := dealt(d.N(), 8)
+	sf := StepwiseFits{Predictors: d.Predictors, Wald: WaldEqualSlopes, LR: LRTest,
+		Fit: func(m Model) (*Result, error) {
+			r, err := Fit(d, m, Options{Workers: 1})
+			if err != nil || !r.OK() {
+				return r, err
+			}
+			V, info, err := SandwichEstimate(d, r, Clustered, clusters, false)
+			if err != nil {
+				return nil, err
+			}
+			r.UseCovariance(V, info)
+			return r, nil
+		}}
+	var terms []Term
+	for _, p := range d.Predictors {
+		terms = append(terms, Term{Name: p, Columns: []string{p}})
+	}
+	sr := StepwiseWith(sf, Model{Comparison: Cumulative, Link: Logit}, terms, 0.05, TestWald)
+	if sr.Start == nil || sr.Start.SingularClustered() == "" || len(sr.Steps) != 1 || len(sr.Steps[0].Skipped) != len(terms) || sr.Steps[0].Imposed != "" {
+		t.Fatalf("%+v", sr)
+	}
+	for _, tt := range sr.Steps[0].Tests {
+		if tt.OK || !strings.Contains(tt.Reason, "parameters exceed G-1 = 7") {
+			t.Errorf("%+v", tt)
+		}
+	}
+}

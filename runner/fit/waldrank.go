@@ -111,9 +111,9 @@ func (r *Result) WaldDefined(R [][]float64) error {
 // singular, or returns "": from G clusters its rank is at most G-1, so a
 // model of P > G-1 parameters has combinations of its estimates with no
 // estimated variance. A Wald test of fewer restrictions may still be
-// made from it, but a decision rule does not read one (runner's
-// judgeTest), and check, run and the report say so (runner's
-// Analysis.SingularModels).
+// made from it, but neither a decision rule (runner's judgeTest) nor a
+// step of stepwise selection (StepwiseWith) reads one, and check, run and
+// the report say so (runner's Analysis.SingularModels).
 func (r *Result) SingularClustered() string {
 	P := len(r.Estimates)
 	if !SingularCovariance(P, r.Clusters) {
