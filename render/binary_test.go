@@ -67,6 +67,14 @@ rules:
 	if strings.Contains(methods, "The parallel-lines assumption was tested") || !strings.Contains(methods, "no parallel-lines test was computed") {
 		t.Errorf("methods:\n%s", methods)
 	}
+	// Logit and cloglog links: the cumulative comparisons are not called
+	// logits, and the proportional odds model is the logit link's.
+	if strings.Contains(methods, "cumulative logits") || !strings.Contains(methods, "cumulative probabilities through each link (under the logit link with parallel effects, the proportional odds model)") {
+		t.Errorf("methods name the cumulative comparisons wrongly for logit and cloglog links:\n%s", methods)
+	}
+	if w := cumulativeWords([]fit.Link{fit.Probit}); w != "cumulative probabilities through the link" {
+		t.Errorf("probit alone: %q", w)
+	}
 	limits := md[strings.Index(md, "## Assumptions and limits"):strings.Index(md, "## Methods")]
 	if strings.Contains(limits, "Tests of the parallel-lines assumption reject easily") || strings.Contains(limits, "negative category probabilities") {
 		t.Errorf("limits:\n%s", limits)

@@ -119,7 +119,7 @@ func writeMethods(d *doc, r *runner.Result) {
 		for _, a := range p.Models.Approaches {
 			switch a {
 			case fit.Cumulative:
-				comps = append(comps, "cumulative logits (the proportional odds model when effects are parallel) "+c.cite("mccullagh"))
+				comps = append(comps, cumulativeWords(p.Models.Links)+" "+c.cite("mccullagh"))
 			case fit.Stage:
 				comps = append(comps, "continuation-ratio (sequential) comparisons "+c.cite("fienberg", "mare"))
 			case fit.Adjacent:
@@ -431,4 +431,19 @@ func termTestsMethods(or *runner.OutcomeResult, inf plan.Inference, sampling boo
 	}
 	s = append(s, "These tests assume the chosen model holds and refer their statistics to large-sample distributions: the Wald and likelihood-ratio statistics can differ in small samples, in large samples they reject for effects too small to matter, and a term associated with the outcome given the others is not thereby a cause of it; their p-values were not corrected for the number of terms tested.")
 	return strings.Join(s, " ")
+}
+
+// cumulativeWords names the cumulative comparisons of the methods draft
+// by the links fitted: logits (the proportional odds model) only under the
+// logit link alone.
+func cumulativeWords(links []fit.Link) string {
+	logit := slices.Contains(links, fit.Logit)
+	switch {
+	case logit && len(links) == 1:
+		return "cumulative logits (the proportional odds model when effects are parallel)"
+	case logit:
+		return "cumulative probabilities through each link (under the logit link with parallel effects, the proportional odds model)"
+	default:
+		return "cumulative probabilities through the link"
+	}
 }
