@@ -302,13 +302,21 @@ func subsetMethods(p *plan.Plan, ds *data.Dataset, imputed bool) string {
 	}
 	undecided := ""
 	if ds.RowsUndecided > 0 {
+		// Each column's count is of the rows that miss it (a row missing
+		// two columns counts under both), not the data section's first
+		// missing column of each row.
 		var cols []string
+		sum := 0
 		if mt := ds.Missing; mt != nil {
 			for j, col := range mt.Columns {
 				if mt.ByColumn[j] > 0 && slices.ContainsFunc(p.Subset, func(c data.Condition) bool { return c.Column == col }) {
-					cols = append(cols, fmt.Sprintf("%s: %d", col, mt.ByColumn[j]))
+					cols = append(cols, fmt.Sprintf("%d miss %s", mt.ByColumn[j], col))
+					sum += mt.ByColumn[j]
 				}
 			}
+		}
+		if sum > ds.RowsUndecided {
+			cols = append(cols, "some miss several")
 		}
 		parts = append(parts, fmt.Sprintf("%d could not be judged because they miss a column the conditions read (%s)", ds.RowsUndecided, strings.Join(cols, ", ")))
 		undecided = fmt.Sprintf(" The %d rows whose membership of the subset is unknown were dropped as rows with missing values", ds.RowsUndecided)
