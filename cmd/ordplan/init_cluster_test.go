@@ -49,3 +49,34 @@ func TestInitOffersClusterIDs(t *testing.T) {
 		t.Fatalf("not a valid plan: %v\n%s", err, text)
 	}
 }
+
+// TestInitKeepsNumericPredictors: whole-number measurements with many
+// values repeated over rows (sizes, incomes, ages, hours, a 0-40 score)
+// stay predictors, even when a word of the name is also an id word
+// (class_size, subject_age, household_income): only a name that ends in
+// an id word (clinic, school_id, ClinicID) says cluster ids.
+func TestInitKeepsNumericPredictors(t *testing.T) {
+	dir := t.TempDir()
+	var b strings.Builder
+	b.WriteString("y,class_size,household_income,subject_age,hours,score,ClinicID\n")
+	for i := range 400 {
+		fmt.Fprintf(&b, "%d,%d,%d,%d,%d,%d,%d\n", 1+i%3, 15+(i*8)%21, 20+(i*13)%101, 18+(i*17)%63, (i*11)%51, (i*19)%41, 1+(i*7)%30)
+	}
+	dataPath := filepath.Join(dir, "t.csv")
+	os.WriteFile(dataPath, []byte(b.String()), 0o644)
+	planPath := filepath.Join(dir, "t.yaml")
+	if _, errs, code := runCLI("init", planPath, "--data", dataPath, "--outcome", "y"); code != 0 {
+		t.Fatal(errs)
+	}
+	text, _ := os.ReadFile(planPath)
+	for _, want := range []string{
+		"predictors: [class_size, household_income, subject_age, hours, score]",
+		"#   hours             numeric, whole numbers from 0 to 50\n",
+		"#   ClinicID          numeric, whole numbers from 1 to 30, 30 distinct codes",
+		"ClinicID looks like cluster ids or identifiers",
+	} {
+		if !strings.Contains(string(text), want) {
+			t.Errorf("want %q in\n%s", want, text)
+		}
+	}
+}

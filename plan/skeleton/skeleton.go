@@ -457,7 +457,7 @@ var (
 // outcomeByName guesses the outcome among columns without values to judge
 // (a header line): the first whose name says rating or order, else the
 // first whose name says neither count, measure or identifier (countNames,
-// idNames), else the first column.
+// idName), else the first column.
 func outcomeByName(cols []data.Profile) int {
 	for i, c := range cols {
 		if hasAny(strings.ToLower(c.Name), orderNames) {
@@ -466,7 +466,7 @@ func outcomeByName(cols []data.Profile) int {
 	}
 	for i, c := range cols {
 		name := strings.ToLower(c.Name)
-		if !hasAny(name, countNames) && !hasAny(name, idNames) {
+		if !hasAny(name, countNames) && !idName(c.Name) {
 			return i
 		}
 	}
@@ -486,35 +486,80 @@ func weightLike(c data.Profile) bool {
 	return c.Numeric && c.Min >= 0 && hasAny(strings.ToLower(c.Name), weightNames)
 }
 
-// idNames begin words of the names of identifier columns, clusterNames
-// of the units that group rows into clusters.
-var (
-	idNames      = []string{"id", "code", "key", "record", "row", "subject", "participant", "respondent", "case", "uuid"}
-	clusterNames = []string{"clinic", "cluster", "school", "hospital", "centre", "center", "practice", "household", "village", "ward", "family", "class", "team"}
-)
+// idWords are the words that, ending a column's name, say the column holds
+// identifiers or the ids of clusters (clinic, school_id, ward_no, ClinicID).
+// A name whose last word is something else (class_size, subject_age,
+// household_income) names a measurement of the unit, not its id.
+var idWords = map[string]bool{}
+
+// idTails end a name after an id word without changing what it names
+// (ward_no, clinic_number).
+var idTails = map[string]bool{"no": true, "nr": true, "num": true, "number": true}
+
+func init() {
+	for _, w := range strings.Fields(`id ids identifier code key record row subject participant respondent
+		patient case uuid clinic cluster school site centre center hospital hosp practice household
+		village ward family class team`) {
+		idWords[w] = true
+	}
+}
+
+// nameWords splits a column name into lower-case words: at every character
+// that is not a letter and where a lower-case letter meets a capital
+// (ClinicID: clinic, id).
+func nameWords(name string) []string {
+	var words []string
+	var cur []rune
+	var prev rune
+	for _, r := range name {
+		if !unicode.IsLetter(r) || (unicode.IsUpper(r) && unicode.IsLower(prev)) {
+			if len(cur) > 0 {
+				words = append(words, strings.ToLower(string(cur)))
+				cur = cur[:0]
+			}
+		}
+		if unicode.IsLetter(r) {
+			cur = append(cur, r)
+		}
+		prev = r
+	}
+	if len(cur) > 0 {
+		words = append(words, strings.ToLower(string(cur)))
+	}
+	return words
+}
+
+// idName reports whether a column's name says identifier or cluster: its
+// last word is an id word (idWords), or an id word followed by no, nr, num
+// or number.
+func idName(name string) bool {
+	w := nameWords(name)
+	if len(w) >= 2 && idTails[w[len(w)-1]] {
+		w = w[:len(w)-1]
+	}
+	return len(w) > 0 && idWords[w[len(w)-1]]
+}
 
 // clusterLike reports whether a column holds codes repeated over rows, as
 // the ids of clinics or schools do: more than 10 distinct values, each in
-// two rows or more on average, that are whole numbers running without a
-// gap from 0 or 1 (1..48) or texts of a few letters and a number (c1..c48)
-// when there are more than MaxValues of them, or any whole numbers or
-// texts under a name that says identifier or cluster (clinic, school, id,
-// ...). Such a column is offered as data.cluster, not as a predictor.
+// two rows or more on average, that are whole numbers or texts under a
+// name that says identifier or cluster (idName: clinic, school_id), or
+// texts of a few letters and a number (c1..c48) when there are more than
+// MaxValues of them. Counts alone cannot tell clinic ids 1..48 from hours
+// 0..50, so an unnamed whole-number column stays a predictor. Such a
+// column is offered as data.cluster, not as a predictor.
 func clusterLike(p data.Profile) bool {
 	n := p.Rows - p.Missing
 	if p.Count <= 10 || 2*p.Count > n || weightLike(p) {
 		return false
 	}
-	named := hasAny(strings.ToLower(p.Name), idNames) || hasAny(strings.ToLower(p.Name), clusterNames)
 	switch {
 	case p.Numeric && !p.Integer:
 		return false
-	case p.Numeric && (p.Min == 0 || p.Min == 1) && p.Max-p.Min+1 == float64(p.Count):
-		return p.Many || named
 	case !p.Numeric && p.Many && codeLabels(p.Values):
 		return true
 	}
-	return named
+	return idName(p.Name)
 }
 
 // codeLabels reports whether every text is a few letters (the same for
