@@ -7,16 +7,27 @@ import (
 	"ordplan/runner"
 )
 
-func writeDecisionLog(d *doc, or *runner.OutcomeResult) {
-	d.h(3, "Decision log")
+// unusableFits lists the candidate models that no rule saw, with why:
+// fits that failed or whose covariance could not be computed, as
+// (model, why) pairs in the order of the fits.
+func unusableFits(or *runner.OutcomeResult) [][2]string {
+	var out [][2]string
 	for _, f := range or.Fits {
 		if !f.Auxiliary && f.Err != "" {
 			why := f.Rejected // "could not be fitted: ..." or "fitted, but its covariance ..." (applyRules)
 			if why == "" {
 				why = "could not be fitted: " + f.Err
 			}
-			d.p("- %s %s", f.ID, why)
+			out = append(out, [2]string{f.ID, why})
 		}
+	}
+	return out
+}
+
+func writeDecisionLog(d *doc, or *runner.OutcomeResult) {
+	d.h(3, "Decision log")
+	for _, f := range unusableFits(or) {
+		d.p("- %s %s", f[0], f[1])
 	}
 	for i, ro := range or.Rules {
 		d.p("**Rule %d, `%s`** (plan line %d). %s", i+1, ro.Rule.Kind, ro.Rule.Line, ro.Description)

@@ -267,14 +267,18 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	add("tests", "every test of the report: parallel lines, nested likelihood ratios, each model against its thresholds-only model, the Lipsitz and Pulkstenis-Robinson tests, the plan's hypotheses, the tests of each term of the chosen model",
 		[]string{"family", "approach", "link", "scope", "test", "chi2", "df", "p", "note"}, rows)
 
-	// The decision log.
+	// The decision log: first the models no rule saw (order 0), then
+	// each rule's verdicts.
 	rows = nil
+	for _, f := range unusableFits(or) {
+		rows = append(rows, []string{"0", "before_rules", "", f[0], "false", f[1]})
+	}
 	for i, ro := range or.Rules {
 		for _, v := range ro.Verdicts {
 			rows = append(rows, []string{strconv.Itoa(i + 1), ro.Rule.Kind, strconv.Itoa(ro.Rule.Line), v.Model, strconv.FormatBool(v.Kept), v.Reason})
 		}
 	}
-	add("decision-log", "each decision rule's verdict on each model, rules in plan order", []string{"order", "rule", "plan_line", "model", "kept", "reason"}, rows)
+	add("decision-log", "each decision rule's verdict on each model, rules in plan order (order 0: the models no rule saw, not fitted or without a covariance)", []string{"order", "rule", "plan_line", "model", "kept", "reason"}, rows)
 
 	if or.Chosen == nil || !or.Chosen.OK() {
 		return out

@@ -1475,6 +1475,11 @@ func catalogue(dir string) (items []badInput) {
 				if !strings.Contains(string(rep), "fitted, but its covariance could not be computed: cumulative/nonparallel/logit: jackknife covariance: without cluster \"p\"") {
 					t.Errorf("report.md does not say why cumulative/nonparallel/logit was refused")
 				}
+				// The decision log's table lists it first, as no rule saw it.
+				csv, _ := os.ReadFile(filepath.Join(outDir, "table-decision-log-y.csv"))
+				if !strings.Contains(string(csv), "\n0,before_rules,,cumulative/nonparallel/logit,false,\"fitted, but its covariance could not be computed: cumulative/nonparallel/logit: jackknife covariance: without cluster \"\"p\"\"") {
+					t.Errorf("table-decision-log-y.csv does not list the refused model:\n%s", csv)
+				}
 			}},
 		{id: "W4", name: "every weight zero", args: []string{"run"},
 			plan: edit("file: d.csv", "file: allzero.csv\n  weights: w"), code: 1,
