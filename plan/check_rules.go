@@ -220,21 +220,32 @@ func (d *decoder) checkGridLevels(p *Plan, c *CategoricalColumn, ax GridAxis, ke
 	seen := map[string]bool{}
 	for j, l := range ax.Levels {
 		ip := itemPath(key, j)
-		if len(ax.Levels) == 1 && d.nodes[ip] == nil {
+		single := len(ax.Levels) == 1 && d.nodes[ip] == nil
+		if single {
 			ip = key // one level written without a list
 		}
 		switch {
 		case !slices.Contains(c.Levels, l):
 			msg := fmt.Sprintf("%s is not a level of %s (%s.levels: %s)", quote(l), quote(ax.Predictor), c.Key, strings.Join(c.Levels, ", "))
-			if near := words.Nearest(l, c.Levels, 3); len(near) > 0 {
-				q := make([]string, len(near))
-				for i, n := range near {
-					q[i] = quote(n)
+			var q []string
+			nearAll := false
+			for _, n := range words.Nearest(l, append(slices.Clip(c.Levels), GridAllLevels), 4) {
+				if n == GridAllLevels && !slices.Contains(c.Levels, n) {
+					nearAll = true
+				} else {
+					q = append(q, quote(n))
 				}
+			}
+			if len(q) > 0 {
 				msg += "; nearest levels: " + strings.Join(q, ", ")
 			}
-			if l == GridAllLevels {
+			switch {
+			case l == GridAllLevels:
 				msg += fmt.Sprintf("; in a list, %s names a level: write %s: %s, without brackets, for every level", GridAllLevels, ax.Predictor, GridAllLevels)
+			case nearAll && single:
+				msg += fmt.Sprintf("; nearest word: %s (write %s: %s for every level the rows used have)", GridAllLevels, ax.Predictor, GridAllLevels)
+			case nearAll:
+				msg += fmt.Sprintf("; nearest word: %s (write %s: %s, without brackets, for every level the rows used have)", GridAllLevels, ax.Predictor, GridAllLevels)
 			}
 			d.errAt(ip, "%s", msg)
 		case seen[l]:

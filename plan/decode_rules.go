@@ -200,6 +200,17 @@ func gridCategoricalWant(col string) string {
 	return fmt.Sprintf("%s is categorical: give %s (%s: %s, every level the rows used have), one of its levels, or a list of its levels", quote(col), GridAllLevels, col, GridAllLevels)
 }
 
+// gridNumericAll says why all is refused for a column not declared
+// categorical.
+func gridNumericAll(col string) string {
+	return fmt.Sprintf("%s is for a categorical column (every level); %s is numeric (not declared under categorical): give a list of numbers, such as %s: [-1, 0, 1]", GridAllLevels, quote(col), col)
+}
+
+// isWord reports whether n is the plain scalar w (not null).
+func isWord(n *yaml.Node, w string) bool {
+	return n != nil && n.Kind == yaml.ScalarNode && n.ShortTag() != "!!null" && n.Value == w
+}
+
 // decodeGrid reads a grid of prediction points: a mapping of predictor to
 // a non-empty list of numbers (a numeric column) or to all, a level or a
 // list of levels (a declared categorical column), in plan order. The
@@ -231,6 +242,10 @@ func (d *decoder) decodeGrid(n *yaml.Node, path string) []GridAxis {
 			}
 			continue
 		}
+		if isWord(deref(v), GridAllLevels) {
+			d.errorf(deref(v), kp, "%s", gridNumericAll(k.Value))
+			continue
+		}
 		items, ok := d.list(v, kp)
 		if !ok {
 			continue
@@ -240,6 +255,10 @@ func (d *decoder) decodeGrid(n *yaml.Node, path string) []GridAxis {
 			continue
 		}
 		for j, it := range items {
+			if isWord(deref(it), GridAllLevels) {
+				d.errorf(deref(it), itemPath(kp, j), "%s", gridNumericAll(k.Value))
+				continue
+			}
 			if f, ok := d.number(it, itemPath(kp, j)); ok {
 				ax.Values = append(ax.Values, f)
 			}
@@ -256,7 +275,7 @@ func (d *decoder) decodeGrid(n *yaml.Node, path string) []GridAxis {
 func (d *decoder) gridLevels(ax GridAxis, v, key *yaml.Node) (GridAxis, bool) {
 	kp := ax.Key
 	switch {
-	case v != nil && v.Kind == yaml.ScalarNode && v.ShortTag() != "!!null" && v.Value == GridAllLevels:
+	case isWord(v, GridAllLevels):
 		ax.AllLevels = true
 		return ax, true
 	case v != nil && v.Kind == yaml.ScalarNode && v.ShortTag() != "!!null":
