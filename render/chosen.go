@@ -52,7 +52,7 @@ func writeChosen(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		}
 	}
 	if why := res.SingularClustered(); why != "" {
-		d.p("**Warning:** %s, %s: some combinations of its estimates have no estimated variance, and no decision rule read a Wald test made from this covariance.", or.Chosen.ID, why)
+		d.p("**Warning:** %s, %s: some combinations of its estimates have no estimated variance, no joint test of G or more restrictions can be made from it, and its errors, intervals and tests rest on few clusters.", or.Chosen.ID, why)
 	}
 	if res.DF != nil {
 		stat = "t"

@@ -52,7 +52,7 @@ func writeTests(d *doc, or *runner.OutcomeResult) {
 		if fG > 0 {
 			d.p("A Wald test on the cluster-robust covariance shows its statistic W (column Chi-square) and its q restrictions (df); its p-value is that of F = W (G-q)/((G-1) q) on F(q, G-q), G = %s clusters, shown beside its name.", numfmt.Num(fG))
 			if np := or.Cell(tb.Approach, fit.NonparallelEffects, tb.Link); np != nil && np.Result != nil && np.Result.SingularClustered() != "" {
-				d.p("**The Wald tests above are made in %s, whose cluster-robust covariance is singular:** %s. Read them with that in mind; no decision rule reads them.", np.ID, np.Result.SingularClustered())
+				d.p("**The Wald tests above are made in %s, whose cluster-robust covariance is singular:** %s. A test shown with a p-value was made from the covariance of its own restrictions, of full rank, and a decision rule reads it as any other; a test of G or more restrictions cannot be made. Each rests on few clusters.", np.ID, np.Result.SingularClustered())
 			}
 		}
 		rows = nil

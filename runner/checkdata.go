@@ -154,8 +154,9 @@ func NotCheckedWithoutData(p *plan.Plan) []string {
 // (jobs; fits of one term alone parallel left out), each model's
 // parameters counted from its structure on the columns cols and J
 // categories. The cluster-robust covariance of such a model has rank at
-// most G-1, so it is singular (fit.Result.SingularClustered); a rule does
-// not read a Wald test made from it. "" without clustered errors or
+// most G-1, so it is singular (fit.Result.SingularClustered): information
+// about the model; a Wald test of at most G-1 restrictions made from it is
+// read like any other (fit's waldDefined decides). "" without clustered errors or
 // without such a model. One wording, which check, run (the outcome's notes
 // in decisions.json and the report) and the report's chosen model give.
 func (a *Analysis) SingularModels(r Reading, ds *data.Dataset, jobs []*FitEntry, J int, cols []string) string {
@@ -189,7 +190,7 @@ func (a *Analysis) SingularModels(r Reading, ds *data.Dataset, jobs []*FitEntry,
 		hasParams = strings.Replace(over[0], " (", " has ", 1)
 		hasParams = strings.TrimSuffix(hasParams, ")") + ","
 	}
-	return fmt.Sprintf("%s: column %q holds %d clusters in the %d rows used, and %s more than G-1 = %d: a cluster-robust covariance from G clusters has rank at most G-1, so such a model's covariance is singular (some combinations of its estimates have no estimated variance). A decision rule treats a Wald test made from it as not computable, so the models it would be compared with are not rejected by that test; if such a model is chosen, its standard errors, intervals and tests rest on a singular covariance. Fewer parameters (a partial or parallel model, fewer terms) or more clusters avoid it",
+	return fmt.Sprintf("%s: column %q holds %d clusters in the %d rows used, and %s more than G-1 = %d: a cluster-robust covariance from G clusters has rank at most G-1, so such a model's covariance is singular (some combinations of its estimates have no estimated variance): a joint Wald test of G or more restrictions cannot be made from it, and a test of fewer is made and read where the covariance of its restrictions has full rank, but its errors, intervals and tests rest on few clusters. Fewer parameters (a partial or parallel model, fewer terms) or more clusters avoid it",
 		a.clusterKey(), r.Options.Cluster, g, ds.N, hasParams, g-1)
 }
 

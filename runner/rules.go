@@ -434,12 +434,12 @@ func (env *ruleEnv) judgeTest(r plan.Rule, f *FitEntry) (bool, string) {
 			parts = append(parts, fmt.Sprintf("not tested against %s: %s", full.ID, why))
 			continue
 		}
+		// A Wald test is read whenever it was computed: its q restrictions
+		// must number at most G-1 under clustered errors and their
+		// covariance R V R' must have full rank (waldDefined), although the
+		// full covariance of a model of more than G-1 parameters is
+		// singular (W19).
 		tt := env.test(r.Test, f, full)
-		if why := full.Result.SingularClustered(); r.Test == fit.TestWald && tt.OK && why != "" {
-			// A Wald test of fewer restrictions can be made from a singular
-			// cluster-robust covariance, but no rule decides on one (W19).
-			tt = fit.Test{Name: tt.Name, Reason: fmt.Sprintf("%s: %s; no rule reads a Wald test made from it", full.ID, why)}
-		}
 		if tt.Negative {
 			parts = append(parts, fmt.Sprintf("the %s test against %s: %s", r.Test.Title(), full.ID, tt.Reason))
 			continue

@@ -166,11 +166,7 @@ func StepwiseWith(sf StepwiseFits, base Model, candidates []Term, alpha float64,
 			}
 			var t Test
 			var alt *Result
-			if why := cur.SingularClustered(); sr.Test == TestWald && why != "" {
-				// A selection step decides as a rule does: not on a
-				// singular cluster-robust covariance.
-				t = failedTest(TestWald.String(), "%s: %s; no rule reads a Wald test made from it", cur.Name, why)
-			} else if sr.Test == TestWald {
+			if sr.Test == TestWald {
 				t = sf.Wald(cur, c.Columns)
 			} else {
 				alt, err = fitOne(withParallel(cur.Model, i))

@@ -110,10 +110,11 @@ func (r *Result) WaldDefined(R [][]float64) error {
 // SingularClustered says why the cluster-robust covariance of fit r is
 // singular, or returns "": from G clusters its rank is at most G-1, so a
 // model of P > G-1 parameters has combinations of its estimates with no
-// estimated variance. A Wald test of fewer restrictions may still be
-// made from it, but neither a decision rule (runner's judgeTest) nor a
-// step of stepwise selection (StepwiseWith) reads one, and check, run and
-// the report say so (runner's Analysis.SingularModels).
+// estimated variance, and joint tests of G or more restrictions cannot be
+// made. A Wald test of at most G-1 restrictions whose covariance R V R'
+// has full rank is made from it (waldDefined decides) and read like any
+// other; check, run and the report name such a model
+// (runner's Analysis.SingularModels).
 func (r *Result) SingularClustered() string {
 	P := len(r.Estimates)
 	if !SingularCovariance(P, r.Clusters) {
