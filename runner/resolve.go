@@ -152,7 +152,7 @@ func (c CovariancePolicy) Notes() []string {
 
 // JackknifeWhy is the run note that says why the delete-one-cluster
 // jackknife is used and what its references do.
-const JackknifeWhy = "The plan asks for the few-cluster correction (few_clusters: jackknife): with few clusters the cluster-robust sandwich is too small and its z and chi-square tests reject a true hypothesis too often; the delete-one-cluster jackknife errs less, and referring its single estimates to t on G-1 degrees of freedom and its joint Wald tests to F(q, G-q) (G the clusters of the rows used, q the restrictions) rather than the normal and chi-square brings their rejection rates much nearer the nominal level (docs/models.md gives the rates measured). The likelihood-ratio, score, Brant and Wolfe-Gould tests and the information criteria are not corrected."
+const JackknifeWhy = "The plan asks for the few-cluster correction (few_clusters: jackknife): with few clusters the cluster-robust sandwich is biased downward, so that its tests reject a true hypothesis too often even on the references it takes (t on G-1 degrees of freedom for a single estimate, F(q, G-q) for a joint Wald test of q restrictions, G the clusters of the rows used); the delete-one-cluster jackknife is larger and errs less, and on the same references its rejection rates come near the nominal level (docs/models.md gives the rates measured). The likelihood-ratio, score, Brant and Wolfe-Gould tests and the information criteria are not corrected."
 
 // Sandwich returns the step that replaces a usable fit's covariance by the
 // sandwich estimate on the data it was fitted to (or, under the
