@@ -716,10 +716,45 @@ func (d *decoder) checkMissing(p *Plan) {
 	}
 }
 
+// ClusterSizeProblem says why n simulated rows cannot hold the clusters
+// the assumptions state (A27): more clusters than rows, or clusters so
+// large (rows_each, DefaultClusterRows by default) that the rows make one.
+// It gives the key at fault and the problem, or "" when the rows can hold
+// them.
+func (a *Assumptions) ClusterSizeProblem(n int) (key, problem string) {
+	key, c := "assumptions.clusters", a.Clusters
+	rows := DefaultClusterRows
+	if c != nil {
+		if c.Number > 0 {
+			if c.Number > n {
+				return key + ".number", fmt.Sprintf("%d clusters cannot be made of the %d rows simulated (n = %d): each cluster needs a row at least; state at most %d clusters, or simulate more rows", c.Number, n, n, n)
+			}
+			return "", ""
+		}
+		rows = c.RowsEach
+	}
+	if rows <= 0 || (n+rows-1)/rows >= 2 {
+		return "", ""
+	}
+	what := fmt.Sprintf("clusters of %d rows", rows)
+	if c != nil {
+		key += ".rows_each"
+	} else {
+		what = fmt.Sprintf("the default clusters of %d rows (rows_each)", rows)
+	}
+	return key, fmt.Sprintf("%s make one cluster of the %d rows simulated (n = %d), and clustered errors need at least 2 (about %d to be trusted): state fewer rows in each cluster (below %d), or simulate more rows", what, n, n, fit.FewClusters, n)
+}
+
 // checkClusters checks the stated clusters against the plan: a cluster
-// column to simulate, and a link with a latent variance for latent_icc.
+// column to simulate, rows enough for them when assumptions.n is given
+// (A27), and a link with a latent variance for latent_icc.
 func (d *decoder) checkClusters(p *Plan) {
 	c := p.Assumptions.Clusters
+	if p.Data.Cluster != "" && d.given("assumptions.n") && d.clean("assumptions.n") && d.clean("assumptions.clusters") {
+		if key, problem := p.Assumptions.ClusterSizeProblem(p.Assumptions.N); problem != "" {
+			d.errAt(key, "%s", problem)
+		}
+	}
 	if c == nil {
 		return
 	}

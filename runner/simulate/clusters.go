@@ -12,24 +12,15 @@ import (
 // Clusters gives the number of clusters simulated in n rows: the stated
 // number, or n over the rows of each cluster, rounded up. It refuses n
 // rows that cannot hold the stated number, or that make one cluster,
-// naming the key.
+// naming the key (Assumptions.ClusterSizeProblem).
 func (s *Sim) Clusters(n int) (int, error) {
-	key, c := "assumptions.clusters", s.Plan.Assumptions.Clusters
+	if key, problem := s.Plan.Assumptions.ClusterSizeProblem(n); problem != "" {
+		return 0, fmt.Errorf("%s: %s: %s", s.Plan.Path, key, problem)
+	}
 	if s.clusterNumber > 0 {
-		if s.clusterNumber > n {
-			return 0, fmt.Errorf("%s: %s.number: %d clusters cannot be made of the %d rows simulated (n = %d): each cluster needs a row at least; state at most %d clusters, or simulate more rows", s.Plan.Path, key, s.clusterNumber, n, n, n)
-		}
 		return s.clusterNumber, nil
 	}
-	G := (n + s.clusterRows - 1) / s.clusterRows
-	if G < 2 {
-		what := fmt.Sprintf("%s.rows_each: clusters of %d rows", key, s.clusterRows)
-		if c == nil {
-			what = fmt.Sprintf("%s: the default clusters of %d rows (rows_each)", key, s.clusterRows)
-		}
-		return 0, fmt.Errorf("%s: %s make one cluster of the %d rows simulated (n = %d), and clustered errors need at least 2 (about %d to be trusted): state fewer rows in each cluster (below %d), or simulate more rows", s.Plan.Path, what, n, n, fit.FewClusters, n)
-	}
-	return G, nil
+	return (n + s.clusterRows - 1) / s.clusterRows, nil
 }
 
 // clusterOf gives the cluster (from 0) of row i of n: runs of consecutive
