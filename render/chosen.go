@@ -42,9 +42,8 @@ func writeChosen(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		}
 		rows = append(rows, row)
 	}
-	stat := "z"
-	if res.RefDF > 0 && res.DF == nil {
-		stat = "t"
+	stat := refStat(res)
+	if stat == "t" {
 		if res.Correction == fit.Jackknife {
 			d.p("Standard errors from the delete-one-cluster jackknife over %d clusters: each p-value and interval refers to t on G-1 = %s degrees of freedom, not to the normal (few clusters; few_clusters: jackknife).", res.Clusters, numfmt.Num(res.RefDF))
 		} else {

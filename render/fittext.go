@@ -83,10 +83,7 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 	}
 	fmt.Fprintln(w)
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	stat := "z"
-	if r.RefDF > 0 {
-		stat = fmt.Sprintf("t(%s)", numfmt.Num(r.RefDF))
-	}
+	stat := refStat(r)
 	fmt.Fprintf(tw, "parameter\testimate\tstd. error\t%s\tp\t%g%% interval\t\n", stat, 100*level)
 	for i, n := range r.ParamNames {
 		inf := r.ParamInference(i, level)
@@ -94,6 +91,9 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 	}
 	if err := tw.Flush(); err != nil {
 		return err
+	}
+	if stat == "t" {
+		fmt.Fprintf(w, "\n%s\n", tNote(r, "estimate"))
 	}
 	fmt.Fprintf(w, "\nA positive slope moves the outcome towards higher categories. L_m = tau[m] - x'b_m.\n")
 	if r.Status == fit.StatusNegativeProbs {
@@ -251,4 +251,25 @@ func testText(label string, t fit.Test) string {
 		return "not tested: " + t.Reason
 	}
 	return fmt.Sprintf("%schi2(%d) = %s, %s", label, t.DF, numfmt.Stat(t.Chi2), numfmt.PText(t.P))
+}
+
+// refStat is the heading of the column of an estimate over its standard
+// error made from r's covariance: "t" when its p-values and intervals
+// refer to t on G-1 degrees of freedom (a cluster-robust covariance, not
+// pooled over imputed sets; the df stated beside the table), "z" when
+// they refer to the normal. One label for every table of estimates,
+// marginal effects and level pairs, in the report, the CSV files and
+// ordplan fit.
+func refStat(r *fit.Result) string {
+	if r != nil && r.RefDF > 0 && r.DF == nil {
+		return "t"
+	}
+	return "z"
+}
+
+// tNote says what the column t of a table of what (an estimate, an
+// effect) from r's covariance holds and its degrees of freedom, where
+// refStat heads it t: one wording, in the report and ordplan fit.
+func tNote(r *fit.Result, what string) string {
+	return fmt.Sprintf("t is the %s over its standard error; p-values and intervals refer to t on G-1 = %s degrees of freedom (a cluster-robust covariance from G = %d clusters), not to the normal.", what, numfmt.Num(r.RefDF), r.Clusters)
 }

@@ -65,13 +65,17 @@ func writePairEffects(d *doc, or *runner.OutcomeResult, set runner.LevelPairSet,
 	if me.Pooling != nil {
 		d.p("On imputed data each difference was computed on each of the %d imputed sets (that set's fit and rows) and pooled by Rubin's rules, as the marginal effects are: p-values and intervals use t on the Barnard-Rubin degrees of freedom (df; inf when the sets agree), and FMI is the fraction of missing information.", or.Imputed.M)
 	}
-	d.captioned("Differences of average marginal effects between the levels of " + mdText(set.Predictor)).table(pairTable(me, set.EffectsAdjusted, set.Multiplicity, level))
+	if refStat(or.Chosen.Result) == "t" {
+		d.p("%s", tNote(or.Chosen.Result, "difference"))
+	}
+	d.captioned("Differences of average marginal effects between the levels of " + mdText(set.Predictor)).table(pairTable(me, set.EffectsAdjusted, set.Multiplicity, level, refStat(or.Chosen.Result)))
 }
 
 // pairTable is the head and rows of a table of differences between pairs
-// of levels, with their adjusted p-values (nil: not adjusted) by method.
-func pairTable(me runner.MarginalSet, adjusted []float64, method string, level float64) ([]string, [][]string) {
-	head := []string{"Change", "Category", "Difference", "Std. error", "z", "p"}
+// of levels, with their adjusted p-values (nil: not adjusted) by method;
+// stat heads the column of a difference over its error (refStat).
+func pairTable(me runner.MarginalSet, adjusted []float64, method string, level float64, stat string) ([]string, [][]string) {
+	head := []string{"Change", "Category", "Difference", "Std. error", stat, "p"}
 	if adjusted != nil {
 		head = append(head, "p, "+pairAdjustment(method))
 	}
@@ -150,7 +154,7 @@ func writePairsAtPoints(d *doc, r *runner.Result, or *runner.OutcomeResult, set 
 		if k == 0 {
 			d.p("A difference at one point compares two groups that share that one covariate profile, in the fitted association: it describes units like that point, not the rows used on average (the average differences above can differ from it in size, even in sign), and it does not say what moving a unit from one level to the other would change.")
 		}
-		d.captioned("Differences of predicted probabilities " + at + " between the levels of " + name).table(pairTable(me, pt.Adjusted, set.Multiplicity, level))
+		d.captioned("Differences of predicted probabilities " + at + " between the levels of " + name).table(pairTable(me, pt.Adjusted, set.Multiplicity, level, refStat(or.Chosen.Result)))
 	}
 }
 
@@ -230,10 +234,13 @@ func writePairOddsRatios(d *doc, or *runner.OutcomeResult, set runner.LevelPairS
 	if s := or.Design.Source(set.Predictor); s >= 0 && !slices.Contains([]string{design.Sum, design.Successive}, or.Design.Sources[s].Cat.Coding) {
 		above = fmt.Sprintf(" The pairs against %s are the odds ratios above.", mdText(set.Levels[0]))
 	}
-	d.p("The %s of one level against another (\"b against a\"): exp of the difference of the two levels' linear predictors through the columns of %s (whatever their coding), at each boundary (one value at every boundary when those columns are parallel), with %s intervals and p-values of the Wald z of its log; the standard error of the log is the delta method's on the whole covariance.%s%s%s %s",
-		kind, mdText(set.Predictor), pct(level), above, at, pooled, pairFamilyText(set, "the pairs at one boundary"))
+	d.p("The %s of one level against another (\"b against a\"): exp of the difference of the two levels' linear predictors through the columns of %s (whatever their coding), at each boundary (one value at every boundary when those columns are parallel), with %s intervals and p-values of the Wald %s of its log; the standard error of the log is the delta method's on the whole covariance.%s%s%s %s",
+		kind, mdText(set.Predictor), pct(level), refStat(res), above, at, pooled, pairFamilyText(set, "the pairs at one boundary"))
 	adj := pairAdjustment(set.Multiplicity)
-	head := []string{"Change", "Boundary", capitalize(kind), pct(level) + " low", pct(level) + " high", "z", "p"}
+	head := []string{"Change", "Boundary", capitalize(kind), pct(level) + " low", pct(level) + " high", refStat(res), "p"}
+	if refStat(res) == "t" {
+		d.p("%s", tNote(res, "log of the ratio"))
+	}
 	if adj != "" {
 		head = append(head, "p, "+adj)
 	}
@@ -258,6 +265,10 @@ func writePairOddsRatios(d *doc, or *runner.OutcomeResult, set runner.LevelPairS
 func levelPairsCSV(or *runner.OutcomeResult) [][]string {
 	var rows [][]string
 	pooled := or.Imputed != nil
+	refDF := "" // the df of t under a cluster-robust covariance (refStat)
+	if or.Chosen != nil && refStat(or.Chosen.Result) == "t" {
+		refDF = csvNum(or.Chosen.Result.RefDF)
+	}
 	for _, set := range or.LevelPairs {
 		differences := func(kind string, me runner.MarginalSet, adjusted []float64) {
 			for e, x := range me.Effects {
@@ -265,7 +276,7 @@ func levelPairsCSV(or *runner.OutcomeResult) [][]string {
 				if adjusted != nil {
 					adj = csvNum(adjusted[e])
 				}
-				df := ""
+				df := refDF
 				if pooled && e < len(me.Pooling) && me.Pooling[e].DF != nil {
 					df = csvNum(*me.Pooling[e].DF)
 				}
@@ -281,7 +292,7 @@ func levelPairsCSV(or *runner.OutcomeResult) [][]string {
 			if o.Adjusted != nil {
 				adj = csvNum(*o.Adjusted)
 			}
-			rows = append(rows, []string{set.Predictor, "odds_ratio", o.Change, "", strconv.Itoa(o.Boundary), csvNum(o.Ratio), csvNum(o.LogSE), csvNum(o.Z), csvNum(o.P), adj, set.Multiplicity, csvNum(o.Low), csvNum(o.High), ""})
+			rows = append(rows, []string{set.Predictor, "odds_ratio", o.Change, "", strconv.Itoa(o.Boundary), csvNum(o.Ratio), csvNum(o.LogSE), csvNum(o.Z), csvNum(o.P), adj, set.Multiplicity, csvNum(o.Low), csvNum(o.High), refDF})
 		}
 	}
 	return rows

@@ -160,6 +160,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 
 	// Estimates of every usable candidate.
 	rows = nil
+	stat := "z"
 	for _, f := range or.Fits {
 		if f.Auxiliary || !f.OK() {
 			continue
@@ -175,18 +176,26 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 					row[len(row)-1] = csvNum(inf.DF)
 				}
 			}
+			if refStat(res) == "t" {
+				stat = "t"
+				row = append(row, csvNum(res.RefDF))
+			}
 			rows = append(rows, row)
 		}
 	}
 	lv := fmt.Sprintf("%g", 100*level)
-	about = "the estimates of every usable candidate model with standard errors, z, p and " + lv + "% intervals"
-	head := []string{"model", "verdict", "parameter", "estimate", "std_error", "z", "p", "low_" + lv, "high_" + lv}
+	about = "the estimates of every usable candidate model with standard errors, " + stat + ", p and " + lv + "% intervals"
+	head := []string{"model", "verdict", "parameter", "estimate", "std_error", stat, "p", "low_" + lv, "high_" + lv}
+	if stat == "t" {
+		head = append(head, "df")
+		about += " (t: the estimate over its standard error, p and the intervals from t on df = G-1 degrees of freedom, G the clusters of the cluster-robust covariance)"
+	}
 	if or.Imputed != nil {
 		head = append(head, "df")
 		about += ", pooled over the imputed sets (z is the estimate over its standard error; p and the intervals from t on df, the Barnard-Rubin degrees of freedom; df empty when infinite)"
 	}
 	if r.Analysis != nil && r.Analysis.Errors.Jackknife() {
-		about += "; standard errors from the delete-one-cluster jackknife, p and the intervals from t on G-1 degrees of freedom (G the clusters)"
+		about += "; standard errors from the delete-one-cluster jackknife"
 	}
 	add("estimates", about, head, rows)
 
@@ -293,8 +302,13 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	// Marginal effects.
 	if len(or.Marginal) > 0 {
 		rows = nil
-		head := []string{"kind", "predictor", "change", "category", "discrete_change", "effect", "std_error", "z", "p", "low_" + lv, "high_" + lv}
+		mstat := refStat(or.Chosen.Result)
+		head := []string{"kind", "predictor", "change", "category", "discrete_change", "effect", "std_error", mstat, "p", "low_" + lv, "high_" + lv}
 		about := "marginal effects of the chosen model with " + lv + "% intervals"
+		if mstat == "t" {
+			head = append(head, "df")
+			about += " (t: the effect over its standard error, p and the intervals from t on df = G-1 degrees of freedom, G the clusters of the cluster-robust covariance)"
+		}
 		if or.Imputed != nil {
 			head = append(head, "df", "fmi")
 			about += ", pooled over the imputed sets (t intervals on df; df empty when infinite)"
@@ -302,6 +316,9 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		for _, set := range or.Marginal {
 			for e, me := range set.Effects {
 				row := []string{set.Kind, me.Predictor, me.Change, me.Category, strconv.FormatBool(me.Discrete), csvNum(me.Effect), csvNum(me.SE), csvNum(me.Z), csvNum(me.P), csvNum(me.Low), csvNum(me.High)}
+				if mstat == "t" {
+					row = append(row, csvNum(or.Chosen.Result.RefDF))
+				}
 				if or.Imputed != nil {
 					row = append(row, "", "")
 					if e < len(set.Pooling) {
@@ -331,7 +348,10 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		if or.Imputed != nil {
 			about += "; differences pooled over the imputed sets (t intervals on df; df empty when infinite)"
 		}
-		add("level-pairs", about, []string{"predictor", "kind", "change", "category", "boundary", "estimate", "std_error", "z", "p", "adjusted_p", "adjustment", "low_" + lv, "high_" + lv, "df"}, levelPairsCSV(or))
+		if refStat(or.Chosen.Result) == "t" {
+			about += "; t: the estimate (of an odds ratio, its log) over its standard error, p and the intervals from t on df = G-1 degrees of freedom, G the clusters of the cluster-robust covariance"
+		}
+		add("level-pairs", about, []string{"predictor", "kind", "change", "category", "boundary", "estimate", "std_error", refStat(or.Chosen.Result), "p", "adjusted_p", "adjustment", "low_" + lv, "high_" + lv, "df"}, levelPairsCSV(or))
 	}
 	// Predicted probabilities over the focus predictor.
 	if pf, err := newProfile(or, focusName(r), nil); err == nil {

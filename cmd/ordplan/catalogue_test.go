@@ -1463,6 +1463,12 @@ func catalogue(dir string) (items []badInput) {
 				if code != 0 || !strings.Contains(e, w) || !strings.Contains(string(dec), verdict) || !strings.Contains(string(rep), verdict) || !strings.Contains(string(rep), strings.TrimPrefix(w, "W19.yaml: outcome y: ")) {
 					t.Errorf("run (exit %d) does not warn on stderr, or the rule's verdict does not read the test:\n%s", code, e)
 				}
+				// Under clustered errors the column of estimate over error is
+				// headed t, with df = G-1 beside it.
+				est, _ := os.ReadFile(filepath.Join(outDir, "table-estimates-y.csv"))
+				if !strings.HasPrefix(string(est), "model,verdict,parameter,estimate,std_error,t,p,low_95,high_95,df\n") || !strings.Contains(string(est), ",4\n") {
+					t.Errorf("table-estimates-y.csv does not head t with df 4:\n%.300s", est)
+				}
 				if strings.Contains(string(dec), "parameters exceed G-1 = 4: the cluster-robust covariance from G = 5 clusters has rank at most G-1, so it is singular;") || strings.Contains(string(rep), "no rule reads") {
 					t.Errorf("a computed Wald test is said not to be read")
 				}

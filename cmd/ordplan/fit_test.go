@@ -95,6 +95,9 @@ func TestFitTableAndFailures(t *testing.T) {
 		{"sandwich", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89,male", "--covariance", "sandwich"}, 0, "sandwich (HC1"},
 		{"clustered without column", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89", "--covariance", "clustered"}, 1, "--cluster COL"},
 		{"clustered", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89,male", "--covariance", "clustered", "--cluster", "ed"}, 0, "cluster-robust"},
+		// The column of estimate over error is headed t, its df said once.
+		{"clustered t", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89,male", "--covariance", "clustered", "--cluster", "ed"}, 0, "std. error       t        p "},
+		{"clustered t df", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89,male", "--covariance", "clustered", "--cluster", "ed"}, 0, "t is the estimate over its standard error; p-values and intervals refer to t on G-1 = "},
 		{"sampling weights without weights", []string{"fit", "--data", gss, "--outcome", "warm", "--predictors", "yr89", "--weight-kind", "sampling"}, 1, "need a weights column"},
 	}
 	for _, c := range cases {
