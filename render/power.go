@@ -49,14 +49,8 @@ func PowerOutputs(pr *simulate.PowerResult, reg *lock.Status) (map[string][]byte
 	if len(pr.Missing) > 0 {
 		d.p("%s In every replicate the plan's `data.missing` handled them as it will handle the real data's, so the rates below count the information the missing values take away.", simulatedMissingText(pr.Missing))
 	}
-	if pr.Weights != nil {
-		d.p("%s", simulatedWeightsText(pr.Weights))
-	}
-	if len(pr.Truncated) > 0 {
-		d.p("%s", simulatedTruncationText(pr.Truncated))
-	}
+	writeSimulatedDraws(d, pr.Weights, pr.Truncated, pr.Clusters)
 	if pr.Clusters != nil {
-		d.p("%s", simulatedClustersText(pr.Clusters))
 		writeFewClusters(d, pr)
 	}
 	writePowerSizes(d, pr)

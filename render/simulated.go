@@ -31,14 +31,21 @@ func writeSimulated(d *doc, r *runner.Result) {
 	if len(s.Missing) > 0 {
 		d.p("%s The run handled them as `data.missing` says, as it will handle the real data's missing values.", simulatedMissingText(s.Missing))
 	}
-	if s.Weights != nil {
-		d.p("%s", simulatedWeightsText(s.Weights))
+	writeSimulatedDraws(d, s.Weights, s.Truncated, s.Clusters)
+}
+
+// writeSimulatedDraws says how the simulated weights, truncated normal
+// columns and clusters were drawn: one wording for the rehearsal's report
+// and the power report.
+func writeSimulatedDraws(d *doc, w *runner.SimulatedWeights, ts []runner.SimulatedTruncation, c *runner.SimulatedClusters) {
+	if w != nil {
+		d.p("%s", simulatedWeightsText(w))
 	}
-	if len(s.Truncated) > 0 {
-		d.p("%s", simulatedTruncationText(s.Truncated))
+	if len(ts) > 0 {
+		d.p("%s", simulatedTruncationText(ts))
 	}
-	if s.Clusters != nil {
-		d.p("%s", simulatedClustersText(s.Clusters))
+	if c != nil {
+		d.p("%s", simulatedClustersText(c))
 	}
 }
 

@@ -24,24 +24,14 @@ func TestInitOffersClusterIDs(t *testing.T) {
 	for i := range 700 {
 		fmt.Fprintf(&b, "%d,%d,c%d,%d,%d,%.3f\n", 1+i%3, 1+(i*7)%48, 1+(i*11)%48, 18+(i*13)%60, i%12, 0.5+float64(i%50)/20)
 	}
-	dataPath := filepath.Join(dir, "t.csv")
-	os.WriteFile(dataPath, []byte(b.String()), 0o644)
-	planPath := filepath.Join(dir, "t.yaml")
-	if _, errs, code := runCLI("init", planPath, "--data", dataPath, "--outcome", "grade"); code != 0 {
-		t.Fatal(errs)
-	}
-	text, _ := os.ReadFile(planPath)
-	for _, want := range []string{
+	planPath, text := initSkeleton(t, dir, b.String(), "grade")
+	hasEach(t, text,
 		"#   clinic  numeric, whole numbers from 1 to 48, 48 distinct codes over 700 rows (14.6 rows each on average): cluster ids (clinics, schools, ...) or identifiers, not an amount?  (clusters? not a predictor below: see data.cluster)",
 		"#   centre  text, 48 distinct codes over 700 rows (14.6 rows each on average): cluster ids (clinics, schools, ...) or identifiers, not an amount?  (clusters? not a predictor below: see data.cluster)",
 		"  cluster: null           # a column of cluster ids (needs covariance: clustered); clinic and centre look like cluster ids or identifiers",
 		"predictors: [age, dose]",
 		"  weights: null           # a column of case weights (and weight_kind: frequency or sampling); sw looks like weights (sw not whole numbers: sampling weights, weight_kind: sampling; frequency weights are counts)",
-	} {
-		if !strings.Contains(string(text), want) {
-			t.Errorf("want %q in\n%s", want, text)
-		}
-	}
+	)
 	if strings.Contains(string(text), "  clinic:") {
 		t.Errorf("clinic is described in the dictionary as a predictor:\n%s", text)
 	}
@@ -62,20 +52,39 @@ func TestInitKeepsNumericPredictors(t *testing.T) {
 	for i := range 400 {
 		fmt.Fprintf(&b, "%d,%d,%d,%d,%d,%d,%d\n", 1+i%3, 15+(i*8)%21, 20+(i*13)%101, 18+(i*17)%63, (i*11)%51, (i*19)%41, 1+(i*7)%30)
 	}
-	dataPath := filepath.Join(dir, "t.csv")
-	os.WriteFile(dataPath, []byte(b.String()), 0o644)
-	planPath := filepath.Join(dir, "t.yaml")
-	if _, errs, code := runCLI("init", planPath, "--data", dataPath, "--outcome", "y"); code != 0 {
-		t.Fatal(errs)
-	}
-	text, _ := os.ReadFile(planPath)
-	for _, want := range []string{
+	_, text := initSkeleton(t, dir, b.String(), "y")
+	hasEach(t, text,
 		"predictors: [class_size, household_income, subject_age, hours, score]",
 		"#   hours             numeric, whole numbers from 0 to 50\n",
 		"#   ClinicID          numeric, whole numbers from 1 to 30, 30 distinct codes",
 		"ClinicID looks like cluster ids or identifiers",
-	} {
-		if !strings.Contains(string(text), want) {
+	)
+}
+
+// initSkeleton writes csv as dir/t.csv, runs ordplan init on it with the
+// given outcome into dir/t.yaml and returns the plan's path and text.
+func initSkeleton(t *testing.T, dir, csv, outcome string) (string, string) {
+	t.Helper()
+	dataPath := filepath.Join(dir, "t.csv")
+	if err := os.WriteFile(dataPath, []byte(csv), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	planPath := filepath.Join(dir, "t.yaml")
+	if _, errs, code := runCLI("init", planPath, "--data", dataPath, "--outcome", outcome); code != 0 {
+		t.Fatal(errs)
+	}
+	text, err := os.ReadFile(planPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return planPath, string(text)
+}
+
+// hasEach reports each of wants that text lacks.
+func hasEach(t *testing.T, text string, wants ...string) {
+	t.Helper()
+	for _, want := range wants {
+		if !strings.Contains(text, want) {
 			t.Errorf("want %q in\n%s", want, text)
 		}
 	}

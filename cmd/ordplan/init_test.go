@@ -84,18 +84,8 @@ func TestInitCategorical(t *testing.T) {
 	for i, s := range []string{"north", "south", "east", "north", "south", "east", "north", "east"} {
 		csv += "p" + strconv.Itoa(i) + "," + strconv.Itoa(1+i%3) + "," + strconv.Itoa(i) + ".5," + s + "\n"
 	}
-	dataPath := filepath.Join(dir, "t.csv")
-	os.WriteFile(dataPath, []byte(csv), 0o644)
-	planPath := filepath.Join(dir, "t.yaml")
-	if _, errs, code := runCLI("init", planPath, "--data", dataPath, "--outcome", "grade"); code != 0 {
-		t.Fatal(errs)
-	}
-	text, _ := os.ReadFile(planPath)
-	for _, want := range []string{"  site: {levels: [north, south, east], reference: north}", "predictors: [dose, site]", "# Not listed: id"} {
-		if !strings.Contains(string(text), want) {
-			t.Errorf("want %q in\n%s", want, text)
-		}
-	}
+	planPath, text := initSkeleton(t, dir, csv, "grade")
+	hasEach(t, text, "  site: {levels: [north, south, east], reference: north}", "predictors: [dose, site]", "# Not listed: id")
 	if _, err := plan.Load(planPath); err != nil {
 		t.Fatalf("not a valid plan: %v\n%s", err, text)
 	}
@@ -310,22 +300,12 @@ func TestInitLeavesOutRowNumbers(t *testing.T) {
 	for i := range 40 {
 		fmt.Fprintf(&b, "%d,%d,%d,%d.5\n", i+1, 1+i%3, 20+(i*7)%45, i%9)
 	}
-	dataPath := filepath.Join(dir, "t.csv")
-	os.WriteFile(dataPath, []byte(b.String()), 0o644)
-	planPath := filepath.Join(dir, "t.yaml")
-	if _, errs, code := runCLI("init", planPath, "--data", dataPath, "--outcome", "grade"); code != 0 {
-		t.Fatal(errs)
-	}
-	text, _ := os.ReadFile(planPath)
-	for _, want := range []string{
+	planPath, text := initSkeleton(t, dir, b.String(), "grade")
+	hasEach(t, text,
 		"#   id     numeric, whole numbers from 1 to 40 in 40 rows: a row number or identifier?  (not a predictor below: declare it or leave it out)",
 		"predictors: [age, dose]",
 		"# Not listed: id (empty columns, row numbers or identifiers,",
-	} {
-		if !strings.Contains(string(text), want) {
-			t.Errorf("want %q in\n%s", want, text)
-		}
-	}
+	)
 	if _, err := plan.Load(planPath); err != nil {
 		t.Fatalf("not a valid plan: %v\n%s", err, text)
 	}
