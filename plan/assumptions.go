@@ -719,15 +719,30 @@ func (d *decoder) checkMissing(p *Plan) {
 // ClusterSizeProblem says why n simulated rows cannot hold the clusters
 // the assumptions state (A27): more clusters than rows, or clusters so
 // large (rows_each, DefaultClusterRows by default) that the rows make one.
-// It gives the key at fault and the problem, or "" when the rows can hold
-// them.
-func (a *Assumptions) ClusterSizeProblem(n int) (key, problem string) {
+// from names what gave n, for the message and its remedy: "assumptions.n",
+// a command-line option (such as "--n"), or "" when unknown. It gives the
+// key at fault and the problem, or "" when the rows can hold them. Every
+// check of the rows against the clusters is made by it.
+func (a *Assumptions) ClusterSizeProblem(n int, from string) (key, problem string) {
+	at := fmt.Sprintf("n = %d", n)
+	if from != "" {
+		at += ", from " + from
+	}
+	more := func(least int) string {
+		switch from {
+		case "":
+			return fmt.Sprintf("simulate %d rows or more", least)
+		case "assumptions.n":
+			return fmt.Sprintf("state assumptions.n of %d or more (or give rehearse or power a size of %d or more with --n)", least, least)
+		}
+		return fmt.Sprintf("give %s of %d or more", from, least)
+	}
 	key, c := "assumptions.clusters", a.Clusters
 	rows := DefaultClusterRows
 	if c != nil {
 		if c.Number > 0 {
 			if c.Number > n {
-				return key + ".number", fmt.Sprintf("%d clusters cannot be made of the %d rows simulated (n = %d): each cluster needs a row at least; state at most %d clusters, or simulate more rows", c.Number, n, n, n)
+				return key + ".number", fmt.Sprintf("%d clusters cannot be made of the %d rows simulated (%s): each cluster needs a row at least; state at most %d clusters, or %s", c.Number, n, at, n, more(c.Number))
 			}
 			return "", ""
 		}
@@ -742,16 +757,26 @@ func (a *Assumptions) ClusterSizeProblem(n int) (key, problem string) {
 	} else {
 		what = fmt.Sprintf("the default clusters of %d rows (rows_each)", rows)
 	}
-	return key, fmt.Sprintf("%s make one cluster of the %d rows simulated (n = %d), and clustered errors need at least 2 (about %d to be trusted): state fewer rows in each cluster (below %d), or simulate more rows", what, n, n, fit.FewClusters, n)
+	return key, fmt.Sprintf("%s make one cluster of the %d rows simulated (%s), and clustered errors need at least 2 (about %d to be trusted): state fewer rows in each cluster (below %d), or %s", what, n, at, fit.FewClusters, n, more(rows+1))
 }
 
 // checkClusters checks the stated clusters against the plan: a cluster
-// column to simulate, rows enough for them when assumptions.n is given
-// (A27), and a link with a latent variance for latent_icc.
+// column to simulate, rows enough for them (A27: the rows a command
+// simulates, or assumptions.n when it is given), and a link with a latent
+// variance for latent_icc.
 func (d *decoder) checkClusters(p *Plan) {
 	c := p.Assumptions.Clusters
-	if p.Data.Cluster != "" && d.given("assumptions.n") && d.clean("assumptions.n") && d.clean("assumptions.clusters") {
-		if key, problem := p.Assumptions.ClusterSizeProblem(p.Assumptions.N); problem != "" {
+	if p.Data.Cluster != "" && d.clean("assumptions.clusters") {
+		n, from, check := p.Assumptions.N, "assumptions.n", d.clean("assumptions.n")
+		switch {
+		case d.rows != nil && len(d.rows.Sizes) > 0:
+			// Rows grow the clusters (rows_each) or hold more of them
+			// (number): the smallest size is the one to check.
+			n, from, check = slices.Min(d.rows.Sizes), d.rows.Flag, true
+		case d.rows == nil:
+			check = check && d.given("assumptions.n")
+		}
+		if key, problem := p.Assumptions.ClusterSizeProblem(n, from); check && problem != "" {
 			d.errAt(key, "%s", problem)
 		}
 	}

@@ -2,6 +2,7 @@ package plan
 
 import (
 	"bytes"
+	"fmt"
 	"strings"
 	"testing"
 )
@@ -113,5 +114,63 @@ func TestTransformOfDrawnColumn(t *testing.T) {
 	ok := strings.Replace(transformPlan, "  x: {}\n  r: {}\n  w: {range: [-3, 5]}\n", "  x: {range: [0.5, 100]}\n  r: {range: [0, 10]}\n  w: {range: [-1.5, 5]}\n", 1)
 	if _, err := Parse([]byte(ok), "t.yaml"); err != nil {
 		t.Errorf("ranges above the bounds: %v", err)
+	}
+}
+
+// clusteredPlan states 50 clusters and assumptions.n (N) rows.
+const clusteredPlan = `version: 1
+data: {file: d.csv, cluster: k}
+outcomes:
+  - column: y
+predictors: [a]
+models: {approaches: [cumulative], effects: [parallel]}
+covariance: clustered
+rules:
+  - choose: {by: aic}
+assumptions:
+  n: N
+  predictors: {a: {mean: 0, sd: 1}}
+  outcomes:
+    y: {proportions: [0.3, 0.4, 0.3], effects: {a: 0.2}}
+  clusters: {number: 50}
+`
+
+// The rows against which the clusters are checked (A27) are those that
+// will be simulated: assumptions.n when the plan is read for itself or a
+// rehearsal without --n, the sizes of --n (the smallest of them) when a
+// command gives them, whatever assumptions.n says.
+func TestClusterRowsChecked(t *testing.T) {
+	withN := func(n string) []byte { return []byte(strings.Replace(clusteredPlan, "n: N", "n: "+n, 1)) }
+	const few = "assumptions.clusters.number: 50 clusters cannot be made of the "
+	cases := []struct {
+		name string
+		src  []byte
+		rows *Rows // nil: Parse
+		want string
+	}{
+		{"assumptions.n too small, read for itself", withN("40"), nil, few + "40 rows simulated (n = 40, from assumptions.n)"},
+		{"assumptions.n too small, rehearsed without --n", withN("40"), &Rows{}, few + "40 rows simulated (n = 40, from assumptions.n)"},
+		{"assumptions.n too small, --n holds them", withN("40"), &Rows{Sizes: []int{100}, Flag: "--n"}, ""},
+		{"assumptions.n too small, every size holds them", withN("40"), &Rows{Sizes: []int{400, 50}, Flag: "--n"}, ""},
+		{"assumptions.n holds them, --n does not", withN("100"), &Rows{Sizes: []int{30}, Flag: "--n"}, few + "30 rows simulated (n = 30, from --n): each cluster needs a row at least; state at most 30 clusters, or give --n of 50 or more"},
+		{"assumptions.n holds them, the smallest size does not", withN("100"), &Rows{Sizes: []int{200, 49, 45}, Flag: "--n"}, few + "45 rows simulated (n = 45, from --n)"},
+		{"assumptions.n not given, read for itself", []byte(strings.Replace(clusteredPlan, "  n: N\n", "", 1)), nil, ""},
+		{"assumptions.n not given, --n too small", []byte(strings.Replace(clusteredPlan, "  n: N\n", "", 1)), &Rows{Sizes: []int{20}, Flag: "--n"}, few + "20 rows simulated (n = 20, from --n)"},
+	}
+	for _, c := range cases {
+		var err error
+		if c.rows == nil {
+			_, err = Parse(c.src, "c.yaml")
+		} else {
+			_, err = ParseSimulation(c.src, "c.yaml", *c.rows)
+		}
+		// The message is placed at assumptions.clusters.number's line.
+		at := fmt.Sprintf("c.yaml:%d:22: ", bytes.Count(c.src[:bytes.Index(c.src, []byte("clusters: {"))], []byte("\n"))+1)
+		switch {
+		case c.want == "" && err != nil:
+			t.Errorf("%s: %v", c.name, err)
+		case c.want != "" && (err == nil || !strings.Contains(err.Error(), at+c.want)):
+			t.Errorf("%s: got %v, want %q", c.name, err, c.want)
+		}
 	}
 }

@@ -21,6 +21,9 @@ type decoder struct {
 	// categorical are the columns declared under categorical, once read,
 	// for the keys that take numbers of numeric columns only
 	categorical map[string]bool
+	// rows are those a simulation of the plan makes (nil: the plan is
+	// read for no simulation in particular, so assumptions.n as stated)
+	rows *Rows
 }
 
 func newDecoder(file string) *decoder {

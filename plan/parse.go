@@ -40,18 +40,35 @@ func Load(path string) (*Plan, error) {
 	if err != nil {
 		return nil, fmt.Errorf("cannot read plan: %w", err)
 	}
-	return parse(src, path, true)
+	return parse(src, path, true, nil)
 }
 
 // Parse checks the plan in src, read from path, and applies defaults. On
 // failure the error is an Errors value listing every problem found. Parse
 // does not look at the data file.
 func Parse(src []byte, path string) (*Plan, error) {
-	return parse(src, path, false)
+	return parse(src, path, false, nil)
 }
 
-func parse(src []byte, path string, withData bool) (*Plan, error) {
+// Rows are the rows a command simulates from a plan's assumptions.
+type Rows struct {
+	// Sizes are the numbers of rows simulated, given by the command-line
+	// option Flag (such as "--n"); none when the command simulates
+	// assumptions.n rows, stated or by default.
+	Sizes []int
+	Flag  string
+}
+
+// ParseSimulation is Parse for a command that simulates rows from the
+// plan's assumptions: what the rows must hold (A27) is checked against
+// the rows the command simulates, not against assumptions.n alone.
+func ParseSimulation(src []byte, path string, rows Rows) (*Plan, error) {
+	return parse(src, path, false, &rows)
+}
+
+func parse(src []byte, path string, withData bool, rows *Rows) (*Plan, error) {
 	d := newDecoder(path)
+	d.rows = rows
 	root, perr := readYAML(src, path)
 	if perr != nil {
 		return nil, Errors{perr}

@@ -216,15 +216,43 @@ func registrationItems(dir string) []badInput {
 		{id: "A26", name: "a column drawn once per cluster that the plan does not read", args: []string{"rehearse"}, code: 1,
 			plan: clustered + assumed("{a: 0.2}", "  clusters: {number: 50, per_cluster: [q]}\n"),
 			want: []string{`assumptions.clusters.per_cluster[0]: "q" is not a column the predictors or the subset read (columns: a, b): per_cluster names predictor columns drawn once per cluster`}},
-		{id: "A27", name: "more clusters than the rows simulated", args: []string{"power", "--n", "200,40", "--replicates", "2"}, code: 1,
+		{id: "A27", name: "more clusters than the smallest size power simulates", args: []string{"power", "--n", "200,40", "--replicates", "2"}, code: 1,
 			plan: clustered + assumed("{a: 0.2}", "  clusters: {number: 50}\n"),
-			want: []string{`A27.yaml: assumptions.clusters.number: 50 clusters cannot be made of the 40 rows simulated (n = 40): each cluster needs a row at least; state at most 40 clusters, or simulate more rows`}},
+			want: []string{`A27.yaml:22:22: assumptions.clusters.number: 50 clusters cannot be made of the 40 rows simulated (n = 40, from --n): each cluster needs a row at least; state at most 40 clusters, or give --n of 50 or more`}},
 		{id: "A27", name: "more clusters than assumptions.n rows, refused at check", args: []string{"check", "--no-data"}, code: 1,
 			plan: clustered + assumed("{a: 0.2}", "  n: 40\n  clusters: {number: 50}\n"),
-			want: []string{`A27.yaml:23:22: assumptions.clusters.number: 50 clusters cannot be made of the 40 rows simulated (n = 40): each cluster needs a row at least; state at most 40 clusters, or simulate more rows`}},
+			want: []string{`A27.yaml:23:22: assumptions.clusters.number: 50 clusters cannot be made of the 40 rows simulated (n = 40, from assumptions.n): each cluster needs a row at least; state at most 40 clusters, or state assumptions.n of 50 or more (or give rehearse or power a size of 50 or more with --n)`}},
+		{id: "A27", name: "more clusters than assumptions.n rows, rehearsed without --n", args: []string{"rehearse"}, code: 1,
+			plan: clustered + assumed("{a: 0.2}", "  n: 40\n  clusters: {number: 50}\n"),
+			want: []string{`A27.yaml:23:22: assumptions.clusters.number: 50 clusters cannot be made of the 40 rows simulated (n = 40, from assumptions.n)`}},
+		{id: "A27", name: "clusters that assumptions.n holds, rehearsed with a --n that cannot", args: []string{"rehearse", "--n", "30"}, code: 1,
+			plan: clustered + assumed("{a: 0.2}", "  n: 100\n  clusters: {number: 50}\n"),
+			want: []string{`A27.yaml:23:22: assumptions.clusters.number: 50 clusters cannot be made of the 30 rows simulated (n = 30, from --n): each cluster needs a row at least; state at most 30 clusters, or give --n of 50 or more`}},
 		{id: "A27", name: "clusters so large that the rows simulated make one", args: []string{"rehearse", "--n", "25"}, code: 1,
 			plan: clustered + assumed("{a: 0.2}", "  clusters: {rows_each: 25}\n"),
-			want: []string{`A27.yaml: assumptions.clusters.rows_each: clusters of 25 rows make one cluster of the 25 rows simulated (n = 25), and clustered errors need at least 2 (about 40 to be trusted): state fewer rows in each cluster (below 25), or simulate more rows`}},
+			want: []string{`A27.yaml:22:25: assumptions.clusters.rows_each: clusters of 25 rows make one cluster of the 25 rows simulated (n = 25, from --n), and clustered errors need at least 2 (about 40 to be trusted): state fewer rows in each cluster (below 25), or give --n of 26 or more`}},
+		{id: "A27", name: "more clusters than assumptions.n rows, rehearsed with a --n that holds them (runs)", code: 0,
+			args: []string{"rehearse", "--n", "100", "--quiet", "--out", filepath.Join(dir, "A27-rehearsal")},
+			plan: clustered + assumed("{a: 0.2}", "  n: 40\n  clusters: {number: 50}\n"),
+			want: []string{"SIMULATED DATA: 100 rows simulated from the plan's assumptions", "report: "},
+			check: func(t *testing.T, dir, out, errs string) {
+				b, err := os.ReadFile(filepath.Join(dir, "A27-rehearsal", "simulated-data.csv"))
+				if err != nil {
+					t.Fatal(err)
+				}
+				ks := map[string]bool{}
+				for _, l := range strings.Split(strings.TrimSpace(string(b)), "\n")[1:] {
+					f := strings.Split(l, ",")
+					ks[f[len(f)-1]] = true
+				}
+				if len(ks) != 50 {
+					t.Errorf("%d clusters simulated in 100 rows, want the 50 stated", len(ks))
+				}
+			}},
+		{id: "A27", name: "more clusters than assumptions.n rows, sized by power at sizes that hold them (runs)", code: 0,
+			args: []string{"power", "--n", "100,200", "--replicates", "2", "--quiet", "--out", filepath.Join(dir, "A27-power")},
+			plan: clustered + assumed("{a: 0.2}", "  n: 40\n  clusters: {number: 50}\n"),
+			want: []string{"y n=100: ", "y n=200: ", "report: "}},
 		{id: "W17", name: "a power study whose clustered errors rest on too few clusters at some sizes", code: 0,
 			args: []string{"power", "--n", "100,400", "--replicates", "2", "--quiet", "--out", filepath.Join(dir, "W17-power")},
 			plan: clustered + assumed("{a: 0.2}", ""), want: []string{"report: "},

@@ -63,7 +63,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		}
 		qcfg = &cfg
 	}
-	p, err := loadForSimulation(planPath)
+	p, err := loadForSimulation(planPath, plan.Rows{Sizes: ns, Flag: "--n"})
 	if err != nil {
 		fmt.Fprintln(stderr, err)
 		return exitFail

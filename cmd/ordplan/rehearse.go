@@ -19,13 +19,14 @@ const rehearseUsage = "usage: ordplan rehearse PLAN.yaml [--n N] [--out DIR] [--
 // simulatedFile is the name of the simulated data among a rehearsal's outputs.
 const simulatedFile = "simulated-data.csv"
 
-// loadForSimulation reads a plan whose data need not exist yet.
-func loadForSimulation(path string) (*plan.Plan, error) {
+// loadForSimulation reads a plan whose data need not exist yet, to
+// simulate the rows given (assumptions.n when rows has no sizes).
+func loadForSimulation(path string, rows plan.Rows) (*plan.Plan, error) {
 	src, err := os.ReadFile(path)
 	if err != nil {
 		return nil, fmt.Errorf("cannot read plan: %w", err)
 	}
-	return plan.Parse(src, path)
+	return plan.ParseSimulation(src, path, rows)
 }
 
 // cmdRehearse runs the whole plan on data simulated from its assumptions.
@@ -41,7 +42,15 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	if stop {
 		return code
 	}
-	p, err := loadForSimulation(planPath)
+	var simulated plan.Rows
+	if *n != 0 {
+		if *n < 10 {
+			fmt.Fprintln(stderr, "ordplan rehearse: --n must be at least 10")
+			return exitUsage
+		}
+		simulated = plan.Rows{Sizes: []int{*n}, Flag: "--n"}
+	}
+	p, err := loadForSimulation(planPath, simulated)
 	if err != nil {
 		fmt.Fprintln(stderr, err)
 		return exitFail
@@ -67,10 +76,6 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	defer olock.Unlock()
 	rows := p.Assumptions.N
 	if *n != 0 {
-		if *n < 10 {
-			fmt.Fprintln(stderr, "ordplan rehearse: --n must be at least 10")
-			return exitUsage
-		}
 		rows = *n
 	}
 	var buf bytes.Buffer

@@ -14,7 +14,7 @@ import (
 // rows that cannot hold the stated number, or that make one cluster,
 // naming the key (Assumptions.ClusterSizeProblem).
 func (s *Sim) Clusters(n int) (int, error) {
-	if key, problem := s.Plan.Assumptions.ClusterSizeProblem(n); problem != "" {
+	if key, problem := s.Plan.Assumptions.ClusterSizeProblem(n, ""); problem != "" {
 		return 0, fmt.Errorf("%s: %s: %s", s.Plan.Path, key, problem)
 	}
 	if s.clusterNumber > 0 {
