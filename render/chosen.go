@@ -43,7 +43,7 @@ func writeChosen(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		rows = append(rows, row)
 	}
 	stat := refStat(res)
-	if stat == "t" {
+	if clusterRef(res) {
 		if res.Correction == fit.Jackknife {
 			d.p("Standard errors from the delete-one-cluster jackknife over %d clusters: each p-value and interval refers to t on G-1 = %s degrees of freedom, not to the normal (few clusters; few_clusters: jackknife).", res.Clusters, numfmt.Num(res.RefDF))
 		} else {
@@ -55,7 +55,7 @@ func writeChosen(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	}
 	if res.DF != nil {
 		stat = "t"
-		d.p("Pooled over the imputed sets: each p-value and interval refers to t on the estimate's Barnard-Rubin degrees of freedom (column df of the table Pooling of %s), as Rubin's rules prescribe, not to the normal.", or.Chosen.ID)
+		d.p("Pooled over the imputed sets: each p-value and interval refers to t on the estimate's Barnard-Rubin degrees of freedom (column df of the table Pooling of %s)%s, as Rubin's rules prescribe, not to the normal.", or.Chosen.ID, pooledClusterDF(res))
 	}
 	head := []string{"Parameter", "Estimate", "Std. error", stat, "p", pct(level) + " low", pct(level) + " high"}
 	if grouped {

@@ -254,12 +254,13 @@ func writeMissing(d *doc, or *runner.OutcomeResult) {
 // number of imputed sets, the fraction of missing information of the key
 // estimates, and what imputation assumes.
 // pooledTestsText says how the tests are pooled over the imputed sets;
-// under sampling weights only Wald tests are tests, pooled by D1.
-func pooledTestsText(sampling bool) string {
+// under sampling weights only Wald tests are tests, pooled by D1. g is
+// the clusters of a cluster-robust covariance (0: none).
+func pooledTestsText(sampling bool, g int) string {
 	if sampling {
-		return "Under sampling weights " + runner.SamplingPoolingText() + ". D1 (Li, Raghunathan and Rubin 1991) is an F test on k and v degrees of freedom, shown in the test tables as k F with its F p-value. The plan's test rules use the pooled Wald tests."
+		return "Under sampling weights " + runner.SamplingPoolingText() + ". D1 (Li, Raghunathan and Rubin 1991) is an F test on k and v degrees of freedom, shown in the test tables as k F with its F p-value; " + d1DenominatorText(g) + ". The plan's test rules use the pooled Wald tests."
 	}
-	return "Likelihood-ratio tests are pooled by the D3 statistic (Meng and Rubin 1992), Wald tests (of parallel lines and of the plan's hypotheses) by D1 (Li, Raghunathan and Rubin 1991); both are F tests on k and v degrees of freedom, shown in the test tables as k F with their F p-values. The Brant test is pooled by D1 too, from the binary logits' stacked slopes and their joint covariance in each set; score and Wolfe-Gould tests, known only by their chi-square statistics, and the goodness-of-fit tests of the chosen model (Lipsitz, Pulkstenis-Robinson; each set's rows grouped by that set's own fit), by D2 (Li, Meng, Raghunathan and Rubin 1991), which is less powerful and only approximately calibrated. The plan's test rules use these pooled tests."
+	return "Likelihood-ratio tests are pooled by the D3 statistic (Meng and Rubin 1992), Wald tests (of parallel lines and of the plan's hypotheses) by D1 (Li, Raghunathan and Rubin 1991); both are F tests on k and v degrees of freedom, shown in the test tables as k F with their F p-values; " + d1DenominatorText(g) + ". The Brant test is pooled by D1 too, from the binary logits' stacked slopes and their joint covariance in each set; score and Wolfe-Gould tests, known only by their chi-square statistics, and the goodness-of-fit tests of the chosen model (Lipsitz, Pulkstenis-Robinson; each set's rows grouped by that set's own fit), by D2 (Li, Meng, Raghunathan and Rubin 1991), which is less powerful and only approximately calibrated. The plan's test rules use these pooled tests."
 }
 
 // pooledCriteriaText says what the log-likelihoods and criteria of the
@@ -271,12 +272,48 @@ func pooledCriteriaText(sampling bool) string {
 	return "Log-likelihoods, AIC and BIC are means over the imputed sets: they are not the likelihood of one model, and rules on AIC or BIC compare these means."
 }
 
+// d1DenominatorText says which denominator degrees of freedom D1 takes
+// (impute.D1): the small-sample one for the complete-data degrees of
+// freedom, under a cluster-robust covariance from g clusters (g > 0) with
+// its statistic scaled as on one data set.
+func d1DenominatorText(g int) string {
+	if g > 0 {
+		return fmt.Sprintf("D1's v is the small-sample denominator for a complete-data F test on G-k degrees of freedom, and its statistic is multiplied by (G-k)/(G-1) (G = %d clusters), as a cluster-robust Wald test of one data set is referred to F(k, G-k); with one restriction D1 is the square of the pooled estimate's t on its Barnard-Rubin degrees of freedom; D3 keeps its large-sample v (a likelihood-ratio test takes every observation as independent, as on one data set)", g)
+	}
+	return "D1's v is the small-sample denominator for a complete-data F test on the observations less the parameters; with one restriction D1 is the square of the pooled estimate's t on its Barnard-Rubin degrees of freedom"
+}
+
+// completeDFText says which complete-data degrees of freedom the
+// Barnard-Rubin degrees of freedom of the pooled estimates adjust
+// (runner's completeDF): G-1 under a cluster-robust covariance from g
+// clusters of column cluster (g > 0), else the observations less the
+// parameters.
+func completeDFText(g int, cluster string) string {
+	if g > 0 {
+		return fmt.Sprintf("with the complete-data degrees of freedom taken as G-1 = %d, the clusters of %s less one, which a cluster-robust covariance of one data set refers its single estimates to", g-1, mdCode(cluster))
+	}
+	return "with the complete-data degrees of freedom taken as the observations less the parameters"
+}
+
+// pooledClusters is the number of clusters of the cluster-robust
+// covariance of an outcome's fits pooled over imputed sets (0: the
+// covariance is not cluster-robust).
+func pooledClusters(or *runner.OutcomeResult) int {
+	for _, f := range or.Fits {
+		if f.OK() && f.Pooled != nil && f.Result.RefDF > 0 {
+			return f.Result.Clusters
+		}
+	}
+	return 0
+}
+
 func writeImputation(d *doc, or *runner.OutcomeResult, sampling bool, cluster string) {
 	im := or.Imputed
 	if im == nil {
 		return
 	}
 	d.h(3, "Multiple imputation")
+	g := pooledClusters(or)
 	src := fmt.Sprintf("stacked in %s by the imputation number in column %s", mdCode(im.Files[0]), mdCode(im.Column))
 	switch im.Source {
 	case "files":
@@ -284,8 +321,8 @@ func writeImputation(d *doc, or *runner.OutcomeResult, sampling bool, cluster st
 	case "chained":
 		src = "imputed by this run from `" + im.Files[0] + "`, as described below"
 	}
-	d.p("Every model was fitted on each of the %d imputed data sets (%s; %d rows each) and the fits were pooled by Rubin's rules (Rubin 1987): the estimate is the mean over the sets, its variance the mean within-set variance plus (1 + 1/%d) times the between-set variance. The estimates tables show the pooled estimates with their total standard errors; their p-values and intervals, and those of the odds ratios and of the slopes across boundaries, refer to t on the degrees of freedom of Barnard and Rubin (1999), with the complete-data degrees of freedom taken as the observations less the parameters (the table below gives them for one model). %s The chosen model's marginal effects and its predictions for new rows are computed on each imputed set with that set's fit and rows, and pooled quantity by quantity by the same rules, with t-based intervals. %s",
-		im.M, src, im.Rows, im.M, pooledTestsText(sampling), pooledCriteriaText(sampling))
+	d.p("Every model was fitted on each of the %d imputed data sets (%s; %d rows each) and the fits were pooled by Rubin's rules (Rubin 1987): the estimate is the mean over the sets, its variance the mean within-set variance plus (1 + 1/%d) times the between-set variance. The estimates tables show the pooled estimates with their total standard errors; their p-values and intervals, and those of the odds ratios and of the slopes across boundaries, refer to t on the degrees of freedom of Barnard and Rubin (1999), %s (the table below gives them for one model). %s The chosen model's marginal effects and its predictions for new rows are computed on each imputed set with that set's fit and rows, and pooled quantity by quantity by the same rules, with t-based intervals. %s",
+		im.M, src, im.Rows, im.M, completeDFText(g, cluster), pooledTestsText(sampling, g), pooledCriteriaText(sampling))
 	f := or.Chosen
 	if f == nil || f.Pooled == nil {
 		for _, c := range or.Fits {

@@ -255,21 +255,40 @@ func testText(label string, t fit.Test) string {
 
 // refStat is the heading of the column of an estimate over its standard
 // error made from r's covariance: "t" when its p-values and intervals
-// refer to t on G-1 degrees of freedom (a cluster-robust covariance, not
-// pooled over imputed sets; the df stated beside the table), "z" when
-// they refer to the normal. One label for every table of estimates,
-// marginal effects and level pairs, in the report, the CSV files and
-// ordplan fit.
+// refer to t (on G-1 degrees of freedom under a cluster-robust covariance
+// of one data set, clusterRef; on the Barnard-Rubin degrees of freedom of
+// a fit pooled over imputed sets), "z" when they refer to the normal. One
+// label for every table of estimates, marginal effects and level pairs,
+// in the report, the CSV files and ordplan fit.
 func refStat(r *fit.Result) string {
-	if r != nil && r.RefDF > 0 && r.DF == nil {
+	if clusterRef(r) || r != nil && r.DF != nil {
 		return "t"
 	}
 	return "z"
 }
 
+// clusterRef reports whether r's inference refers to t on G-1 = r.RefDF
+// degrees of freedom: a cluster-robust covariance of one data set (not
+// pooled over imputed sets; the df is stated beside the table).
+func clusterRef(r *fit.Result) bool {
+	return r != nil && r.RefDF > 0 && r.DF == nil
+}
+
 // tNote says what the column t of a table of what (an estimate, an
 // effect) from r's covariance holds and its degrees of freedom, where
-// refStat heads it t: one wording, in the report and ordplan fit.
+// clusterRef: one wording, in the report and ordplan fit. (On imputed
+// data the tables' own paragraphs on the pooling say it, with
+// pooledClusterDF.)
 func tNote(r *fit.Result, what string) string {
 	return fmt.Sprintf("t is the %s over its standard error; p-values and intervals refer to t on G-1 = %s degrees of freedom (a cluster-robust covariance from G = %d clusters), not to the normal.", what, numfmt.Num(r.RefDF), r.Clusters)
+}
+
+// pooledClusterDF says, for a fit pooled over imputed sets whose
+// covariance is cluster-robust, which complete-data degrees of freedom
+// the Barnard-Rubin degrees of freedom adjust (" ..."), or "".
+func pooledClusterDF(r *fit.Result) string {
+	if r == nil || r.DF == nil || r.RefDF <= 0 {
+		return ""
+	}
+	return fmt.Sprintf(" for complete-data degrees of freedom G-1 = %s (the cluster-robust covariance from G = %d clusters of each imputed set)", numfmt.Num(r.RefDF), r.Clusters)
 }

@@ -2,6 +2,7 @@ package render
 
 import (
 	"fmt"
+	"math"
 	"slices"
 	"strconv"
 	"strings"
@@ -63,9 +64,9 @@ func writePairEffects(d *doc, or *runner.OutcomeResult, set runner.LevelPairSet,
 		return
 	}
 	if me.Pooling != nil {
-		d.p("On imputed data each difference was computed on each of the %d imputed sets (that set's fit and rows) and pooled by Rubin's rules, as the marginal effects are: p-values and intervals use t on the Barnard-Rubin degrees of freedom (df; inf when the sets agree), and FMI is the fraction of missing information.", or.Imputed.M)
+		d.p("On imputed data each difference was computed on each of the %d imputed sets (that set's fit and rows) and pooled by Rubin's rules, as the marginal effects are: p-values and intervals use t on the Barnard-Rubin degrees of freedom (df; inf when the sets agree)%s, and FMI is the fraction of missing information.", or.Imputed.M, pooledClusterDF(or.Chosen.Result))
 	}
-	if refStat(or.Chosen.Result) == "t" {
+	if clusterRef(or.Chosen.Result) {
 		d.p("%s", tNote(or.Chosen.Result, "difference"))
 	}
 	d.captioned("Differences of average marginal effects between the levels of " + mdText(set.Predictor)).table(pairTable(me, set.EffectsAdjusted, set.Multiplicity, level, refStat(or.Chosen.Result)))
@@ -143,7 +144,7 @@ func writePairsAtPoints(d *doc, r *runner.Result, or *runner.OutcomeResult, set 
 			if me.Kind == "profile" {
 				own = "the predictors the profile does not set at that set's own means"
 			}
-			pooled = fmt.Sprintf(" On imputed data each difference was computed on each of the %d imputed sets (that set's fit, %s) and pooled by Rubin's rules, as the marginal effects %s are: p-values and intervals use t on the Barnard-Rubin degrees of freedom (df; inf when the sets agree), and FMI is the fraction of missing information; the point shown is the mean of the sets' points.", or.Imputed.M, own, at)
+			pooled = fmt.Sprintf(" On imputed data each difference was computed on each of the %d imputed sets (that set's fit, %s) and pooled by Rubin's rules, as the marginal effects %s are: p-values and intervals use t on the Barnard-Rubin degrees of freedom (df; inf when the sets agree)%s, and FMI is the fraction of missing information; the point shown is the mean of the sets' points.", or.Imputed.M, own, at, pooledClusterDF(or.Chosen.Result))
 		}
 		d.p("**Pairs %s.** For the pair \"a to b\" the difference is the probability of each category predicted for one unit with %s at b less that predicted with %s at a, %s: %s. The pairs from the reference %s are the marginal effects of %s %s above; a pair of two other levels is the difference of their effects against the reference at this point. Standard errors by the delta method on the whole covariance of the model's parameters; intervals at %s, symmetric about the difference.%s%s %s",
 			at, name, name, held, pointExcept(or, me.Point, s), mdText(set.Levels[0]), name, at, pct(level), overridden, pooled,
@@ -228,7 +229,7 @@ func writePairOddsRatios(d *doc, or *runner.OutcomeResult, set runner.LevelPairS
 	}
 	pooled := ""
 	if res.DF != nil {
-		pooled = " Pooled over the imputed sets, z and the intervals refer to t on the smallest Barnard-Rubin degrees of freedom among the parameters involved, as for the odds ratios above."
+		pooled = " Pooled over the imputed sets, t and the intervals refer to t on the smallest Barnard-Rubin degrees of freedom among the parameters involved" + pooledClusterDF(res) + ", as for the odds ratios above."
 	}
 	above := ""
 	if s := or.Design.Source(set.Predictor); s >= 0 && !slices.Contains([]string{design.Sum, design.Successive}, or.Design.Sources[s].Cat.Coding) {
@@ -238,7 +239,7 @@ func writePairOddsRatios(d *doc, or *runner.OutcomeResult, set runner.LevelPairS
 		kind, mdText(set.Predictor), pct(level), refStat(res), above, at, pooled, pairFamilyText(set, "the pairs at one boundary"))
 	adj := pairAdjustment(set.Multiplicity)
 	head := []string{"Change", "Boundary", capitalize(kind), pct(level) + " low", pct(level) + " high", refStat(res), "p"}
-	if refStat(res) == "t" {
+	if clusterRef(res) {
 		d.p("%s", tNote(res, "log of the ratio"))
 	}
 	if adj != "" {
@@ -265,8 +266,8 @@ func writePairOddsRatios(d *doc, or *runner.OutcomeResult, set runner.LevelPairS
 func levelPairsCSV(or *runner.OutcomeResult) [][]string {
 	var rows [][]string
 	pooled := or.Imputed != nil
-	refDF := "" // the df of t under a cluster-robust covariance (refStat)
-	if or.Chosen != nil && refStat(or.Chosen.Result) == "t" {
+	refDF := "" // the df of t under a cluster-robust covariance (clusterRef)
+	if or.Chosen != nil && clusterRef(or.Chosen.Result) {
 		refDF = csvNum(or.Chosen.Result.RefDF)
 	}
 	for _, set := range or.LevelPairs {
@@ -292,7 +293,11 @@ func levelPairsCSV(or *runner.OutcomeResult) [][]string {
 			if o.Adjusted != nil {
 				adj = csvNum(*o.Adjusted)
 			}
-			rows = append(rows, []string{set.Predictor, "odds_ratio", o.Change, "", strconv.Itoa(o.Boundary), csvNum(o.Ratio), csvNum(o.LogSE), csvNum(o.Z), csvNum(o.P), adj, set.Multiplicity, csvNum(o.Low), csvNum(o.High), refDF})
+			df := refDF
+			if pooled && !math.IsInf(o.DF, 1) {
+				df = csvNum(o.DF)
+			}
+			rows = append(rows, []string{set.Predictor, "odds_ratio", o.Change, "", strconv.Itoa(o.Boundary), csvNum(o.Ratio), csvNum(o.LogSE), csvNum(o.Z), csvNum(o.P), adj, set.Multiplicity, csvNum(o.Low), csvNum(o.High), df})
 		}
 	}
 	return rows

@@ -54,12 +54,12 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			d.p("%s", n)
 		}
 		head := []string{"Predictor", "Change", "Category", "Effect", "Std. error", refStat(or.Chosen.Result), "p", pct(level) + " low", pct(level) + " high"}
-		if head[5] == "t" {
+		if clusterRef(or.Chosen.Result) {
 			d.p("%s", tNote(or.Chosen.Result, "effect"))
 		}
 		if set.Pooling != nil {
-			d.p("On imputed data these effects were computed on each of the %d imputed sets (with that set's fit, and for averages and means that set's rows) and pooled by Rubin's rules: the effect is the mean over the sets, its standard error the square root of the mean squared delta-method error plus (1 + 1/%d) times the variance between the sets; p-values and intervals use t on the Barnard-Rubin degrees of freedom (df; inf when the sets agree), and FMI is the fraction of missing information.%s",
-				or.Imputed.M, or.Imputed.M, pooledPoint(set))
+			d.p("On imputed data these effects were computed on each of the %d imputed sets (with that set's fit, and for averages and means that set's rows) and pooled by Rubin's rules: the effect is the mean over the sets, its standard error the square root of the mean squared delta-method error plus (1 + 1/%d) times the variance between the sets; p-values and intervals use t on the Barnard-Rubin degrees of freedom (df; inf when the sets agree)%s, and FMI is the fraction of missing information.%s",
+				or.Imputed.M, or.Imputed.M, pooledClusterDF(or.Chosen.Result), pooledPoint(set))
 			head[5] = "t"
 			head = append(head, "df", "FMI")
 		}

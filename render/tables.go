@@ -161,6 +161,9 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	// Estimates of every usable candidate.
 	rows = nil
 	stat := "z"
+	if or.Imputed != nil {
+		stat = "t" // pooled: t on the Barnard-Rubin degrees of freedom (refStat)
+	}
 	for _, f := range or.Fits {
 		if f.Auxiliary || !f.OK() {
 			continue
@@ -176,7 +179,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 					row[len(row)-1] = csvNum(inf.DF)
 				}
 			}
-			if refStat(res) == "t" {
+			if clusterRef(res) {
 				stat = "t"
 				row = append(row, csvNum(res.RefDF))
 			}
@@ -186,13 +189,12 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	lv := fmt.Sprintf("%g", 100*level)
 	about = "the estimates of every usable candidate model with standard errors, " + stat + ", p and " + lv + "% intervals"
 	head := []string{"model", "verdict", "parameter", "estimate", "std_error", stat, "p", "low_" + lv, "high_" + lv}
-	if stat == "t" {
-		head = append(head, "df")
-		about += " (t: the estimate over its standard error, p and the intervals from t on df = G-1 degrees of freedom, G the clusters of the cluster-robust covariance)"
-	}
 	if or.Imputed != nil {
 		head = append(head, "df")
-		about += ", pooled over the imputed sets (z is the estimate over its standard error; p and the intervals from t on df, the Barnard-Rubin degrees of freedom; df empty when infinite)"
+		about += ", pooled over the imputed sets (t is the estimate over its standard error; p and the intervals from t on df, the Barnard-Rubin degrees of freedom" + pooledCSVDF(or) + "; df empty when infinite)"
+	} else if stat == "t" {
+		head = append(head, "df")
+		about += " (t: the estimate over its standard error, p and the intervals from t on df = G-1 degrees of freedom, G the clusters of the cluster-robust covariance)"
 	}
 	if r.Analysis != nil && r.Analysis.Errors.Jackknife() {
 		about += "; standard errors from the delete-one-cluster jackknife"
@@ -305,18 +307,17 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		mstat := refStat(or.Chosen.Result)
 		head := []string{"kind", "predictor", "change", "category", "discrete_change", "effect", "std_error", mstat, "p", "low_" + lv, "high_" + lv}
 		about := "marginal effects of the chosen model with " + lv + "% intervals"
-		if mstat == "t" {
-			head = append(head, "df")
-			about += " (t: the effect over its standard error, p and the intervals from t on df = G-1 degrees of freedom, G the clusters of the cluster-robust covariance)"
-		}
 		if or.Imputed != nil {
 			head = append(head, "df", "fmi")
-			about += ", pooled over the imputed sets (t intervals on df; df empty when infinite)"
+			about += ", pooled over the imputed sets (t: the effect over its standard error, p and the intervals from t on df, the Barnard-Rubin degrees of freedom" + pooledCSVDF(or) + "; df empty when infinite)"
+		} else if mstat == "t" {
+			head = append(head, "df")
+			about += " (t: the effect over its standard error, p and the intervals from t on df = G-1 degrees of freedom, G the clusters of the cluster-robust covariance)"
 		}
 		for _, set := range or.Marginal {
 			for e, me := range set.Effects {
 				row := []string{set.Kind, me.Predictor, me.Change, me.Category, strconv.FormatBool(me.Discrete), csvNum(me.Effect), csvNum(me.SE), csvNum(me.Z), csvNum(me.P), csvNum(me.Low), csvNum(me.High)}
-				if mstat == "t" {
+				if or.Imputed == nil && mstat == "t" {
 					row = append(row, csvNum(or.Chosen.Result.RefDF))
 				}
 				if or.Imputed != nil {
@@ -341,14 +342,17 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		add("marginal-effects", about, head, rows)
 	}
 	if len(or.LevelPairs) > 0 {
-		about := "comparisons between every pair of levels of the categorical predictors of inference.level_pairs in the chosen model with " + lv + "% intervals: differences of average marginal effects (change a to b: the probability with the predictor at b less that at a, averaged over the rows used) and odds ratios of one level against another (estimate: the ratio; std_error and z: of its log; boundary 0: the same at every boundary); adjusted_p: the p-value adjusted by adjustment within the predictor's pairs for one category or at one boundary"
+		pairStat := "z"
+		if or.Imputed != nil {
+			pairStat = "t"
+		}
+		about := "comparisons between every pair of levels of the categorical predictors of inference.level_pairs in the chosen model with " + lv + "% intervals: differences of average marginal effects (change a to b: the probability with the predictor at b less that at a, averaged over the rows used) and odds ratios of one level against another (estimate: the ratio; std_error and " + pairStat + ": of its log; boundary 0: the same at every boundary); adjusted_p: the p-value adjusted by adjustment within the predictor's pairs for one category or at one boundary"
 		if slices.ContainsFunc(or.LevelPairs, func(set runner.LevelPairSet) bool { return len(set.AtPoints) > 0 }) {
 			about += "; effect_at_means, effect_at_profile: the difference of the probabilities predicted with the predictor at b and at a at one point, the other predictors at the point of the marginal effects at the means or at the plan's profile (table-marginal-effects, column at), p-values adjusted within the pairs for one category at that point"
 		}
 		if or.Imputed != nil {
-			about += "; differences pooled over the imputed sets (t intervals on df; df empty when infinite)"
-		}
-		if refStat(or.Chosen.Result) == "t" {
+			about += "; pooled over the imputed sets (t: the estimate, of an odds ratio its log, over its standard error, p and the intervals from t on df, the Barnard-Rubin degrees of freedom" + pooledCSVDF(or) + ", for an odds ratio the smallest among the parameters involved; df empty when infinite)"
+		} else if refStat(or.Chosen.Result) == "t" {
 			about += "; t: the estimate (of an odds ratio, its log) over its standard error, p and the intervals from t on df = G-1 degrees of freedom, G the clusters of the cluster-robust covariance"
 		}
 		add("level-pairs", about, []string{"predictor", "kind", "change", "category", "boundary", "estimate", "std_error", refStat(or.Chosen.Result), "p", "adjusted_p", "adjustment", "low_" + lv, "high_" + lv, "df"}, levelPairsCSV(or))
@@ -396,6 +400,19 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 }
 
 // writeFilesSection lists the files of the run in the report.
+// pooledCSVDF says, in a CSV file's description, which complete-data
+// degrees of freedom the Barnard-Rubin degrees of freedom of an outcome
+// analysed on imputed data adjust under a cluster-robust covariance (" for
+// complete-data degrees of freedom G-1 = 23 (...)"), or "".
+func pooledCSVDF(or *runner.OutcomeResult) string {
+	for _, f := range or.Fits {
+		if f.OK() && f.Result.DF != nil && f.Result.RefDF > 0 {
+			return fmt.Sprintf(" for complete-data degrees of freedom G-1 = %s (G the clusters of the cluster-robust covariance)", csvNum(f.Result.RefDF))
+		}
+	}
+	return ""
+}
+
 func writeFilesSection(d *doc, r *runner.Result) {
 	d.h(2, "Files of this run")
 	d.p("Beside this report, the run wrote these files (their SHA-256 hashes are in run.json). Tables are CSV with a header line, numbers to 12 significant digits, an empty cell where a value does not exist.")

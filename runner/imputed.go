@@ -68,6 +68,11 @@ func fileBytes(path string) func() ([]byte, error) {
 	return func() ([]byte, error) { return data.ReadFile(path) }
 }
 
+// sameClusters says why every imputed set must hold the data file's
+// cluster ids (data.cluster): the one wording of imputedSets and
+// matchObserved.
+const sameClusters = "cluster ids are not imputed, and Rubin's rules need the same clusters in every imputed set (under clustered errors the complete-data degrees of freedom are the clusters less one)"
+
 // imputedSets reads the imputed sets of an outcome, checks that they are
 // complete and have the same rows and columns, and builds their designs
 // with the constants (centring, knots) frozen on the first set.
@@ -136,6 +141,13 @@ func imputedSets(a *Analysis, r Reading) (*ImputedRun, []*data.Dataset, *design.
 				return nil, nil, nil, err
 			}
 			return nil, nil, nil, fmt.Errorf("%s: data.imputed: imputed set %d, %s, has %d rows but set 1, %s, has %d; imputed sets must hold the same rows", src, k+1, names[k], ds.N, names[0], sets[0].N)
+		}
+		if !slices.Equal(ds.Cluster, sets[0].Cluster) {
+			i := 0 // the first row whose cluster differs (the sets have as many rows)
+			for ds.Cluster[i] == sets[0].Cluster[i] {
+				i++
+			}
+			return nil, nil, nil, fmt.Errorf("%s: data.imputed: imputed set %d, %s, line %d: the cluster column %q (data.cluster) is %s where imputed set 1, %s, line %d, has %s; %s", src, k+1, names[k], ds.Lines[i], r.Options.Cluster, strconv.Quote(ds.Cluster[i]), names[0], sets[0].Lines[i], strconv.Quote(sets[0].Cluster[i]), sameClusters+": make the imputed sets again keeping the data file's cluster ids")
 		}
 		if !slices.Equal(ds.Categories, sets[0].Categories) {
 			return nil, nil, nil, fmt.Errorf("%s: data.imputed: imputed set %d, %s, has the outcome categories %s but set 1 has %s; declare the outcome's categories in the plan", src, k+1, names[k], strings.Join(ds.Categories, ", "), strings.Join(sets[0].Categories, ", "))
@@ -326,7 +338,12 @@ func poolResults(rs []*fit.Result, obs float64, data []*fit.Data) (*fit.Result, 
 		sets[k] = impute.Set{Est: r.Estimates, Cov: r.Cov}
 	}
 	first := rs[0]
-	pl, err := impute.Pool(sets, completeDF(obs, first.NParams))
+	for k, r := range rs {
+		if r.RefDF != first.RefDF || r.Clusters != first.Clusters {
+			return nil, nil, fmt.Errorf("imputed set %d has a covariance from %d clusters but set 1 from %d: the sets must share their clusters", k+1, r.Clusters, first.Clusters)
+		}
+	}
+	pl, err := impute.Pool(sets, completeDF(obs, first.NParams, first))
 	if err != nil {
 		return nil, nil, err
 	}
@@ -708,7 +725,7 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 		if err != nil {
 			return nil, fmt.Errorf("%s (plan %s, outcome %q)", err, an.Source, oc.Column)
 		}
-		if err := run.matchObserved(an.Source, orig, an.DataFile, dopt.PredictorLevels); err != nil {
+		if err := run.matchObserved(an.Source, orig, an.DataFile, dopt.Cluster, dopt.PredictorLevels); err != nil {
 			return nil, err
 		}
 		ds.Missing, run.observed = orig.Missing, orig
@@ -779,9 +796,10 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 }
 
 // ImputedClusterNote says which references the clustered errors take on
-// imputed data: Rubin's rules', not those of a cluster-robust covariance
-// of one data set (fit.Result.waldTest), which the pooling does not carry.
-const ImputedClusterNote = "With clustered errors on imputed data, the pooled estimates, intervals and Wald tests (D1) refer to t and F on the Barnard-Rubin degrees of freedom of Rubin's rules, not to t on G-1 and F(q, G-q) as on one data set: the pooling does not allow for the few clusters the covariance is estimated from, so with q restrictions not small against G clusters a pooled Wald test rejects a true hypothesis too often"
+// imputed data: those of a cluster-robust covariance of one data set
+// (fit.Result.waldTest) as the complete-data analysis that Rubin's rules
+// adjust (completeDF, impute.D1).
+const ImputedClusterNote = "With clustered errors on imputed data, the complete-data analysis whose references Rubin's rules adjust is the cluster-robust one: the Barnard-Rubin degrees of freedom of the pooled estimates, intervals, hypotheses of one restriction, marginal effects, level pairs and predictions are those for G-1 complete-data degrees of freedom (G the clusters, the same in every imputed set), and a pooled Wald test (D1) of q restrictions is multiplied by (G-q)/(G-1) and referred to F(q, v), v the small-sample denominator for G-q complete-data degrees of freedom, as F(q, G-q) on one data set. Likelihood-ratio tests (D3) take every observation as independent, as on one data set. With few clusters the pooled tests inherit the cluster-robust covariance's tendency to reject a true hypothesis too often"
 
 // imputedNotes are the notes of an outcome analysed on m imputed sets.
 // Under sampling weights no likelihood-based statistic is a test, so
@@ -857,11 +875,13 @@ func pooledLinear(f *FitEntry, hy *fit.Hypothesis) fit.Test {
 // matchObserved checks that every imputed set was made from the original
 // data orig (its incomplete rows kept): the same rows, in order, and in
 // each row every value orig observes (the outcome and the raw columns
-// the terms read) the same in the set, numbers within 1e-9 relative (the
+// the terms read) the same in the set, and the same cluster id
+// (clusterColumn; every row orig keeps has one, as clusters are never
+// imputed), numbers within 1e-9 relative (the
 // digits another program may write). Imputed sets made from another
 // version of the data file (rows added since, a value corrected) would
 // otherwise be analysed while the report describes the file.
-func (run *ImputedRun) matchObserved(src string, orig *data.Dataset, file string, levels map[string][]string) error {
+func (run *ImputedRun) matchObserved(src string, orig *data.Dataset, file, clusterColumn string, levels map[string][]string) error {
 	value := func(col string, v float64) string {
 		if lv, ok := levels[col]; ok && v >= 0 && v == math.Trunc(v) && int(v) < len(lv) {
 			return strconv.Quote(lv[int(v)])
@@ -887,6 +907,9 @@ func (run *ImputedRun) matchObserved(src string, orig *data.Dataset, file string
 			}
 			if y := orig.Y[i]; y >= 0 && ds.Y[i] != y {
 				return where(orig.Outcome, strconv.Quote(ds.Categories[ds.Y[i]]), strconv.Quote(orig.Categories[y]))
+			}
+			if orig.Cluster != nil && ds.Cluster[i] != orig.Cluster[i] {
+				return fmt.Errorf("%s: data.imputed: imputed set %d, %s, line %d: the cluster column %q (data.cluster) is %s where the data file %s, line %d, has %s; %s: %s", src, k+1, run.names[k], ds.Lines[i], clusterColumn, strconv.Quote(ds.Cluster[i]), file, orig.Lines[i], strconv.Quote(orig.Cluster[i]), sameClusters, redo)
 			}
 			for j := 0; j < orig.K; j++ {
 				v, w := orig.X[i*orig.K+j], ds.X[i*orig.K+j]

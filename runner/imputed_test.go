@@ -55,19 +55,19 @@ inference:
 
 // identicalSetsP is the p-value a test pooled over identical imputed sets
 // (pooled) has when the same test on one set (single) has single.P: the
-// same, except for D1 of one restriction, which is the t test of the
-// pooled estimate on its Barnard-Rubin degrees of freedom, with no
-// between-set variance those of the complete data, (nu+1)/(nu+3) nu (as
-// mice's pool() gives them): the single set's statistic on F(1, DF2), DF2
-// below the rows.
+// same, except for D1, whose denominator degrees of freedom with no
+// between-set variance are those of the complete data, (nu+1)/(nu+3) nu
+// (as mice's pool() gives them for one restriction and mitml's
+// testModels with df.com for more): the single set's statistic over its
+// restrictions on F(DF, DF2), DF2 below the rows.
 func identicalSetsP(pooled, single fit.Test) float64 {
-	if pooled.Pooled != "D1" || pooled.DF != 1 {
+	if pooled.Pooled != "D1" {
 		return single.P
 	}
 	if !(pooled.DF2 > 0 && pooled.DF2 < 300) {
 		return math.NaN()
 	}
-	return fit.TSurvival2(math.Sqrt(single.Chi2), pooled.DF2)
+	return fit.FSurvival(single.Chi2/float64(pooled.DF), pooled.DF, pooled.DF2)
 }
 
 // TestImputedIdenticalSets: with identical imputed sets the pooled fits
@@ -159,8 +159,8 @@ func TestImputedIdenticalSets(t *testing.T) {
 			t.Errorf("rule verdict on %s: %+v, single-set %+v", v.Model, v, w)
 		}
 	}
-	// D1 of identical sets is the single-set Wald test (chi-square p; t on
-	// the complete-data degrees of freedom for one restriction).
+	// D1 of identical sets is the single-set Wald statistic, on F with the
+	// complete-data denominator degrees of freedom (identicalSetsP).
 	for i, h := range oi.Hypotheses {
 		g := os1.Hypotheses[i]
 		if h.Test.Pooled != "D1" || math.Abs(h.Test.Chi2-g.Test.Chi2) > 1e-6*g.Test.Chi2 || math.Abs(h.Test.P-identicalSetsP(h.Test, g.Test)) > 1e-9 {
@@ -593,7 +593,7 @@ func stepOneDirect(t *testing.T, stacked string, m int, test string) []impute.FT
 			for k, r := range full {
 				per[k] = impute.Set{Est: r.Estimates, Cov: r.Cov}
 			}
-			pl, err := impute.Pool(per, completeDF(full[0].NObs, full[0].NParams))
+			pl, err := impute.Pool(per, completeDF(full[0].NObs, full[0].NParams, nil))
 			if err != nil {
 				t.Fatal(err)
 			}

@@ -399,7 +399,7 @@ func TestLevelPairsPooled(t *testing.T) {
 		pk := writePlan(t, one, map[string]string{"d.csv": sets[k]})
 		each = append(each, runPlan(t, pk, 0).Outcomes[0])
 	}
-	dfc := completeDF(pooled.Imputed.obs, pooled.Chosen.Result.NParams)
+	dfc := completeDF(pooled.Imputed.obs, pooled.Chosen.Result.NParams, nil).DF
 	// kindsOf is a predictor's pairs of each kind: averaged, at the means.
 	kindsOf := func(set LevelPairSet) []MarginalSet {
 		if len(set.AtPoints) != 1 {

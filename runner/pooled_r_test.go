@@ -60,7 +60,7 @@ func TestPooledPredictionsAgainstMice(t *testing.T) {
 		}
 	}
 	vals := rscript.Run(t, dir, "testdata/rcheck/predpool.R")
-	pooled, df, err := poolPredictions(preds, completeDF(first.NObs, first.NParams))
+	pooled, df, err := poolPredictions(preds, completeDF(first.NObs, first.NParams, nil).DF)
 	if err != nil {
 		t.Fatal(err)
 	}

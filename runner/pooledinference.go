@@ -30,15 +30,24 @@ func completeObs(d *fit.Data, sampling bool) float64 {
 	return fit.Observations(d.N(), d.NObs(), sampling)
 }
 
-// completeDF is the complete-data degrees of freedom of Rubin's rules:
-// nobs observations less params parameters (+Inf when that is not
-// positive).
-func completeDF(nobs float64, params int) float64 {
-	dfc := nobs - float64(params)
-	if !(dfc > 0) {
-		return math.Inf(1)
+// completeDF is the complete-data analysis of Rubin's rules for a model
+// of params parameters fitted on imputed sets of obs observations, r
+// being its fit on one set (nil: a model-based covariance): the one
+// decision of the references every pooled quantity is referred to. Under
+// a cluster-robust covariance from G clusters (r.RefDF = G-1, the
+// clustered sandwich) a single estimate refers to t on G-1 degrees of
+// freedom and a joint Wald test of q restrictions to F(q, G-q), as on one
+// data set (fit.Result.waldTest); otherwise the observations less the
+// parameters (+Inf when that is not positive).
+func completeDF(obs float64, params int, r *fit.Result) impute.Complete {
+	if r != nil && r.RefDF > 0 {
+		return impute.Complete{DF: r.RefDF, Clusters: r.Clusters}
 	}
-	return dfc
+	dfc := obs - float64(params)
+	if !(dfc > 0) {
+		return impute.Complete{DF: math.Inf(1)}
+	}
+	return impute.Complete{DF: dfc}
 }
 
 // onSet is the outcome seen through imputed set k: its rows and fit input.
@@ -77,7 +86,7 @@ func runPooledInference(an *Analysis, or *OutcomeResult) error {
 	fits, ferr := or.chosenPerSet()
 	var dfc float64
 	if ferr == nil {
-		dfc = completeDF(or.Imputed.obs, fits[0].NParams)
+		dfc = completeDF(or.Imputed.obs, fits[0].NParams, fits[0]).DF
 	}
 	for _, kind := range inf.MarginalEffects {
 		if ferr != nil {

@@ -84,7 +84,7 @@ func pooledWolfeGould(or *OutcomeResult, fopt fit.Options) fit.Test {
 // pooledBrant holds the Brant construction of every imputed set.
 type pooledBrant struct {
 	per []*fit.BrantResult
-	dfc float64 // complete-data degrees of freedom of the binary logits
+	dfc impute.Complete // complete-data analysis of the binary logits
 }
 
 // pooledBrant returns the Brant construction of every imputed set, made
@@ -101,9 +101,10 @@ func newPooledBrant(or *OutcomeResult, fopt fit.Options) *pooledBrant {
 	for _, d := range or.Imputed.Sets {
 		pb.per = append(pb.per, fit.Brant(d, fopt))
 	}
-	// The binary logits' parameters: J-1 intercepts and slopes.
+	// The binary logits' parameters: J-1 intercepts and slopes; their
+	// joint covariance is model-based under any covariance of the fits.
 	d := or.Imputed.Sets[0]
-	pb.dfc = completeDF(or.Imputed.obs, (d.J-1)*(len(d.Predictors)+1))
+	pb.dfc = completeDF(or.Imputed.obs, (d.J-1)*(len(d.Predictors)+1), nil)
 	return pb
 }
 

@@ -214,7 +214,7 @@ inference:
 	for i := range moved {
 		moved[i] += f.Result.StdErrors[i] / 10
 	}
-	pl, err := impute.Pool([]impute.Set{{Est: f.Result.Estimates, Cov: f.Result.Cov}, {Est: moved, Cov: f.Result.Cov}}, math.Inf(1))
+	pl, err := impute.Pool([]impute.Set{{Est: f.Result.Estimates, Cov: f.Result.Cov}, {Est: moved, Cov: f.Result.Cov}}, impute.Complete{DF: math.Inf(1)})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -73,6 +73,38 @@ func clusterData(t *testing.T, dir, id string) {
 	})
 }
 
+// imputedClusterData writes clu.csv (clusterData) and two stacked imputed
+// versions of it: imp-clu.csv, whose set 2 puts its first row in another
+// cluster of column three ("z") than set 1, and imp-clu-both.csv, whose
+// two sets both do, unlike the data file.
+func imputedClusterData(t *testing.T, dir, id string) {
+	t.Helper()
+	clusterData(t, dir, id)
+	b, err := os.ReadFile(filepath.Join(dir, "clu.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+	col := slices.Index(strings.Split(lines[0], ","), "three")
+	stack := func(name string, moved func(set int) bool) {
+		var out strings.Builder
+		out.WriteString("imp," + lines[0] + "\n")
+		for k := 1; k <= 2; k++ {
+			for i, l := range lines[1:] {
+				if i == 0 && moved(k) {
+					f := strings.Split(l, ",")
+					f[col] = "z"
+					l = strings.Join(f, ",")
+				}
+				fmt.Fprintf(&out, "%d,%s\n", k, l)
+			}
+		}
+		os.WriteFile(filepath.Join(dir, name), []byte(out.String()), 0o644)
+	}
+	stack("imp-clu.csv", func(k int) bool { return k == 2 })
+	stack("imp-clu-both.csv", func(int) bool { return true })
+}
+
 // refitData writes jk.csv beside the plan: d.csv with a column site
 // dealing the rows into clusters k, m and n, except that every row with b
 // = 1 in category 1 is in cluster p: without p, b = 1 never meets
@@ -844,6 +876,13 @@ func catalogue(dir string) (items []badInput) {
 		{id: "I19", name: "an imputed set that changes an observed value of the data file", args: []string{"run"}, setup: imputedFiles,
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp-other.csv, column: imp}\n"), code: 1,
 			want: []string{`data.imputed: imputed set 2, imp-other.csv (imp = 2), line 124: column "a" is 7.25 where the data file d.csv, line 4, has the observed value -1.6773`, `; an imputed set must keep every observed value of the data file: make the imputed sets again from d.csv, or point data.file at the data they were made from`}},
+		{id: "W20", name: "imputed sets whose cluster ids differ between the sets", args: []string{"check"}, setup: imputedClusterData,
+			plan: edit("  file: d.csv\n", "  file: clu.csv\n  cluster: three\n  imputed: {file: imp-clu.csv, column: imp}\n", "rules:", "covariance: clustered\nrules:"), code: 1,
+			want: []string{`data.imputed: imputed set 2, imp-clu.csv (imp = 2), line 122: the cluster column "three" (data.cluster) is "z" where imputed set 1, imp-clu.csv (imp = 1), line 2, has "k"; cluster ids are not imputed, and Rubin's rules need the same clusters in every imputed set (under clustered errors the complete-data degrees of freedom are the clusters less one): make the imputed sets again keeping the data file's cluster ids`}},
+		{id: "W20", name: "imputed sets whose cluster ids differ from the data file's", args: []string{"run"}, setup: imputedClusterData,
+			plan: edit("  file: d.csv\n", "  file: clu.csv\n  cluster: three\n  imputed: {file: imp-clu-both.csv, column: imp}\n", "rules:", "covariance: clustered\nrules:"), code: 1,
+			lines: true, // run warns first that AIC ignores the clusters (W7)
+			want: []string{`data.imputed: imputed set 1, imp-clu-both.csv (imp = 1), line 2: the cluster column "three" (data.cluster) is "z" where the data file clu.csv, line 2, has "k"; cluster ids are not imputed`, `: an imputed set must keep every observed value of the data file: make the imputed sets again from clu.csv, or point data.file at the data they were made from`}},
 		{id: "I7", name: "imputation number that is not a whole number", args: []string{"run"}, setup: imputedFiles,
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp-frac.csv, column: imp}\n"), code: 1,
 			want: []string{`imp-frac.csv:2: column imp: imputation number "1.5" is not a whole number 0 or more (0 marks the original data)`}},

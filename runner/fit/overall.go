@@ -146,6 +146,9 @@ type CombinedOddsRatio struct {
 	OddsRatio
 	Z float64 `json:"z"`
 	P float64 `json:"p"`
+	// DF is the degrees of freedom of the t its interval and p-value
+	// refer to (referenceDF; +Inf: the normal), for the tables' column df.
+	DF float64 `json:"-"`
 }
 
 // OddsRatioOf is the odds ratio exp(sum_k d_k b_mk) of a logit fit for the
@@ -196,7 +199,7 @@ func (r *Result) OddsRatioOf(name string, d []float64, level float64) ([]Combine
 		df := r.referenceDF(g)
 		z := TQuantile(0.5+level/2, df)
 		o := CombinedOddsRatio{OddsRatio: OddsRatio{Predictor: name, Boundary: m + 1, Kind: kind, Log: b, LogSE: se,
-			Ratio: math.Exp(b), Low: math.Exp(b - z*se), High: math.Exp(b + z*se)}, P: 1}
+			Ratio: math.Exp(b), Low: math.Exp(b - z*se), High: math.Exp(b + z*se)}, P: 1, DF: df}
 		if bounds == 1 {
 			o.Boundary = 0
 		}

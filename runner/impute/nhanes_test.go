@@ -50,7 +50,7 @@ func checkNhanes(t *testing.T, v rscript.Values) float64 {
 		worst = math.Max(worst, math.Abs(got-want)/math.Max(1, math.Abs(want)))
 	}
 	sets, dfcom := nhanesSets(t, v)
-	p, err := Pool(sets, dfcom)
+	p, err := Pool(sets, Complete{DF: dfcom})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -111,7 +111,8 @@ func checkNhanes(t *testing.T, v rscript.Values) float64 {
 	}
 	nearTest("D2", "mice D2", d2, v.Get(t, "d2"))
 	// D1 of bmi and hyp (mitml's testModels of the model against the one
-	// without them, no complete-data degrees of freedom): F, df1, df2, p, r.
+	// without them, with the complete-data degrees of freedom n - p = 21:
+	// its small-sample denominator): F, df1, df2, p, r.
 	C := make([]float64, 2*p.P)
 	C[2], C[p.P+3] = 1, 1
 	d1, err := D1(p, C, nil)

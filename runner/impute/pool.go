@@ -17,18 +17,42 @@ type Set struct {
 	Cov []float64
 }
 
+// Complete is the complete-data analysis whose references Rubin's rules
+// adjust: what its inference would refer to on data without missing
+// values. DF is the degrees of freedom of a single estimate's t (+Inf:
+// the normal); it enters the Barnard-Rubin degrees of freedom. Clusters,
+// when above 0, says that the covariance is cluster-robust from G =
+// Clusters clusters: a single estimate then refers to t on G-1 (DF is
+// G-1) and a joint Wald statistic W of q restrictions as W (G-q)/((G-1) q)
+// to F(q, G-q) (Joint).
+type Complete struct {
+	DF       float64
+	Clusters int
+}
+
+// Joint is the complete-data reference of a joint Wald test of q
+// restrictions: the factor its statistic W/q is multiplied by and the
+// denominator degrees of freedom of the F it is referred to. Under a
+// cluster-robust covariance from G clusters (G-q)/(G-1) and G-q (with q =
+// 1: 1 and G-1, the single estimate's t squared); otherwise 1 and DF.
+func (c Complete) Joint(q int) (scale, df float64) {
+	if c.Clusters > 0 {
+		g := float64(c.Clusters)
+		return (g - float64(q)) / (g - 1), g - float64(q)
+	}
+	return 1, c.DF
+}
+
 // Pooled is the combination of M analyses by Rubin's rules.
 type Pooled struct {
 	M, P int
-	// DFComplete is the degrees of freedom the analysis would have had
-	// without missing values (+Inf for a large-sample analysis); it enters
-	// the Barnard-Rubin degrees of freedom.
-	DFComplete float64
-	Estimate   []float64 // the mean of the M estimates
-	Within     []float64 // P x P: the mean of the M covariances
-	Between    []float64 // P x P: the covariance of the estimates over the sets (divisor M-1)
-	Total      []float64 // P x P: Within + (1 + 1/M) Between
-	SE         []float64 // square roots of the diagonal of Total
+	// Complete is the analysis the sets had without missing values.
+	Complete Complete
+	Estimate []float64 // the mean of the M estimates
+	Within   []float64 // P x P: the mean of the M covariances
+	Between  []float64 // P x P: the covariance of the estimates over the sets (divisor M-1)
+	Total    []float64 // P x P: Within + (1 + 1/M) Between
+	SE       []float64 // square roots of the diagonal of Total
 	// Per parameter: the relative increase in variance (1+1/M) B / W, the
 	// share of the total variance due to missing values (1+1/M) B / T, the
 	// Barnard-Rubin degrees of freedom and the fraction of missing
@@ -38,14 +62,18 @@ type Pooled struct {
 
 // Pool combines the analyses of the imputed sets by Rubin's rules. At
 // least two sets are needed, all with the same number of parameters and
-// finite numbers; dfComplete > 0 (or +Inf).
-func Pool(sets []Set, dfComplete float64) (*Pooled, error) {
+// finite numbers; c.DF > 0 (or +Inf), and under clusters c.DF = G-1.
+func Pool(sets []Set, c Complete) (*Pooled, error) {
 	m := len(sets)
 	if m < 2 {
 		return nil, fmt.Errorf("pooling needs at least two imputed data sets, got %d", m)
 	}
+	dfComplete := c.DF
 	if !(dfComplete > 0) {
 		return nil, fmt.Errorf("complete-data degrees of freedom must be positive, got %g", dfComplete)
+	}
+	if c.Clusters > 0 && dfComplete != float64(c.Clusters-1) {
+		return nil, fmt.Errorf("complete-data degrees of freedom %g under a cluster-robust covariance from %d clusters, not G-1", dfComplete, c.Clusters)
 	}
 	p := len(sets[0].Est)
 	for i, s := range sets {
@@ -64,7 +92,7 @@ func Pool(sets []Set, dfComplete float64) (*Pooled, error) {
 		}
 	}
 	fm := float64(m)
-	r := &Pooled{M: m, P: p, DFComplete: dfComplete,
+	r := &Pooled{M: m, P: p, Complete: c,
 		Estimate: make([]float64, p), Within: make([]float64, p*p), Between: make([]float64, p*p), Total: make([]float64, p*p),
 		SE: make([]float64, p), RIV: make([]float64, p), Lambda: make([]float64, p), DF: make([]float64, p), FMI: make([]float64, p)}
 	// Means.
@@ -111,7 +139,7 @@ func (p *Pooled) Linear(r []float64, c float64) Scalar {
 			b += r[a] * p.Between[a*p.P+k] * r[k]
 		}
 	}
-	return scalarRules(p.M, q, w, b, p.DFComplete)
+	return scalarRules(p.M, q, w, b, p.Complete.DF)
 }
 
 // Scalar is Rubin's rules for one quantity: the pooled estimate, the
@@ -168,7 +196,7 @@ func PoolScalar(q, u []float64, dfComplete float64) (Scalar, error) {
 	for i := range q {
 		sets[i] = Set{Est: q[i : i+1], Cov: u[i : i+1]}
 	}
-	p, err := Pool(sets, dfComplete)
+	p, err := Pool(sets, Complete{DF: dfComplete})
 	if err != nil {
 		return Scalar{}, err
 	}
@@ -219,16 +247,29 @@ type FTest struct {
 	RIV      float64
 	Imputed  int // number of imputed sets
 	Warnings string
+	// D1: the quadratic form over (1 + RIV), before its division by the
+	// restrictions and the complete-data factor, and the complete-data
+	// analysis, which Referred reads.
+	quad     float64
+	complete Complete
 }
 
 // Referred is t referred to k numerator degrees of freedom in place of
-// its own: the same statistic DF1 x F, as F = DF1 F / k on (k,
-// pooledTestDF(k, m, RIV)) degrees of freedom. A hypothesis with no
-// reference of its own dimension (a whole constraint group, whose common
-// factor it leaves unidentified) is referred so to the reference of a
-// larger model it is nested in.
+// its own. D3: the same statistic DF1 x F, as F = DF1 F / k on (k,
+// pooledTestDF(k, m, RIV)) degrees of freedom. D1: its quadratic form
+// over k with the complete-data factor and degrees of freedom of k
+// restrictions (d1Reference). A hypothesis with no reference of its own
+// dimension (a whole constraint group, whose common factor it leaves
+// unidentified) is referred so to the reference of a larger model it is
+// nested in.
 func (t FTest) Referred(k int) FTest {
 	if k == t.DF1 || k < 1 {
+		return t
+	}
+	if t.Method == "D1" {
+		t.F, t.DF2 = d1Reference(t.quad, k, t.Imputed, t.RIV, t.complete)
+		t.DF1 = k
+		t.P = fit.FSurvival(t.F, k, t.DF2)
 		return t
 	}
 	t.F = t.F * float64(t.DF1) / float64(k)
@@ -237,8 +278,9 @@ func (t FTest) Referred(k int) FTest {
 	return t
 }
 
-// pooledTestDF is the denominator degrees of freedom shared by D1 and D3:
-// with t = k(m-1), 4 + (t-4)(1 + (1-2/t)/r)^2 when t > 4, else
+// pooledTestDF is the large-sample denominator degrees of freedom of a
+// pooled test of k restrictions (D3; D1 where d1DF has no small-sample
+// value): with t = k(m-1), 4 + (t-4)(1 + (1-2/t)/r)^2 when t > 4, else
 // t(1+1/k)(1+1/r)^2/2.
 func pooledTestDF(k, m int, r float64) float64 {
 	if r <= 0 {
@@ -253,15 +295,70 @@ func pooledTestDF(k, m int, r float64) float64 {
 	return t * (1 + 1/float64(k)) * a * a / 2
 }
 
+// d1Reference is D1 of k restrictions with quadratic form over (1 + r)
+// quad, on m sets, for the complete-data analysis c: the statistic quad/k
+// times the complete-data factor of k restrictions (c.Joint: (G-q)/(G-1)
+// under clusters, else 1) and its denominator degrees of freedom d1DF
+// with the complete-data ones of k restrictions (G-k under clusters, else
+// c.DF).
+func d1Reference(quad float64, k, m int, r float64, c Complete) (f, df2 float64) {
+	scale, nu := c.Joint(k)
+	return scale * quad / float64(k), d1DF(k, m, r, nu)
+}
+
+// d1DF is the denominator degrees of freedom of D1 of k restrictions over
+// m sets with average relative increase in variance r, for a complete-data
+// F test on nu denominator degrees of freedom (+Inf: a chi-square). With
+// one restriction, the Barnard-Rubin degrees of freedom of lambda =
+// r/(1+r): D1 is then the square of the pooled estimate's t. With more
+// and nu finite, the small-sample value: with t = k(m-1), a = r t/(t-2),
+// nu* = (nu+1)/(nu+3) nu, c1 = nu* - 2(1+a), c2 = nu* - 4(1+a),
+//
+//	z = 1/c2 + (a^2 c1/((1+a)^2 c2) + 8 a^2 c1/((1+a) c2^2)
+//	    + 4 a^2/((1+a) c2) + 4 a^2/(c2 c1) + 16 a^2 c1/c2^3 + 8 a^2/c2^2) / (t-4),
+//
+// df = 4 + 1/z, which is nu* when r = 0 and tends to the large-sample
+// pooledTestDF as nu grows. Where that expression is not defined (t <= 4,
+// c1 or c2 not above 0: few sets and restrictions, or few complete-data
+// degrees of freedom against the missing information) the smaller of the
+// large-sample value and nu*. With nu infinite, the large-sample value.
+func d1DF(k, m int, r, nu float64) float64 {
+	if k == 1 {
+		return BarnardRubinDF(m, r/(1+r), nu)
+	}
+	large := pooledTestDF(k, m, r)
+	if math.IsInf(nu, 1) {
+		return large
+	}
+	vstar := (nu + 1) / (nu + 3) * nu
+	if r <= 0 {
+		return vstar
+	}
+	t := float64(k * (m - 1))
+	a := r * t / (t - 2)
+	c1, c2 := vstar-2*(1+a), vstar-4*(1+a)
+	if t <= 4 || c1 <= 0 || c2 <= 0 {
+		return math.Min(large, vstar)
+	}
+	a2 := a * a
+	z := 1/c2 + (a2*c1/((1+a)*(1+a)*c2)+8*a2*c1/((1+a)*c2*c2)+4*a2/((1+a)*c2)+
+		4*a2/(c2*c1)+16*a2*c1/(c2*c2*c2)+8*a2/(c2*c2))/(t-4)
+	if !(z > 0) {
+		return math.Min(large, vstar)
+	}
+	return 4 + 1/z
+}
+
 // D1 tests C theta = c0 (C: k x P, row-major; c0 nil for zeros) with the
-// pooled Wald statistic:
-// D1 = d' W_c^-1 d / (k (1 + r)), d = C Qbar - c0, W_c = C W C',
-// r = (1 + 1/m) tr(B_c W_c^-1) / k, referred to F(k, df) with the
-// degrees of freedom of pooledTestDF; with one restriction (k = 1) to
-// F(1, df) with the Barnard-Rubin degrees of freedom of the restriction
-// (lambda = r/(1+r), the complete-data degrees of freedom of p): the t
-// test of the pooled estimate, which the interval of Rubin's rules
-// inverts.
+// pooled Wald statistic d' W_c^-1 d / (1 + r), d = C Qbar - c0,
+// W_c = C W C', r = (1 + 1/m) tr(B_c W_c^-1) / k, over k and times the
+// complete-data factor of k restrictions (1; (G-k)/(G-1) under a
+// cluster-robust covariance from G clusters: Complete.Joint), referred to
+// F(k, df) with the degrees of freedom of d1DF for the complete-data
+// degrees of freedom of k restrictions (p.Complete.DF; G-k under
+// clusters). With one restriction (k = 1) df is the Barnard-Rubin degrees
+// of freedom of the restriction (lambda = r/(1+r)): the t test of the
+// pooled estimate, which the interval of Rubin's rules inverts.
 func D1(p *Pooled, C []float64, c0 []float64) (FTest, error) {
 	if len(C) == 0 || len(C)%p.P != 0 {
 		return FTest{}, fmt.Errorf("the contrast matrix has %d entries, not a multiple of the %d parameters", len(C), p.P)
@@ -272,6 +369,9 @@ func D1(p *Pooled, C []float64, c0 []float64) (FTest, error) {
 	}
 	if len(c0) != k {
 		return FTest{}, fmt.Errorf("the hypothesis has %d rows but %d right-hand values", k, len(c0))
+	}
+	if _, nu := p.Complete.Joint(k); !(nu > 0) {
+		return FTest{}, fmt.Errorf("%d restrictions need at least %d clusters, and the data have %d: a cluster-robust covariance from G clusters has rank at most G-1", k, k+1, p.Complete.Clusters)
 	}
 	Cm := mat.NewDense(k, p.P, C)
 	W := mat.NewDense(p.P, p.P, p.Within)
@@ -294,16 +394,9 @@ func D1(p *Pooled, C []float64, c0 []float64) (FTest, error) {
 	var BW mat.Dense
 	BW.Mul(&Bc, &Wi)
 	r := (1 + 1/float64(p.M)) * mat.Trace(&BW) / float64(k)
-	q := mat.Inner(d, &Wi, d)
-	f := q / (float64(k) * (1 + r))
-	df2 := pooledTestDF(k, p.M, r)
-	if k == 1 {
-		// One restriction: D1 is the square of the pooled estimate over
-		// its total standard error, and its reference is that estimate's
-		// t, on the Barnard-Rubin degrees of freedom its interval uses.
-		df2 = BarnardRubinDF(p.M, r/(1+r), p.DFComplete)
-	}
-	return FTest{Method: "D1", F: f, DF1: k, DF2: df2, P: fit.FSurvival(f, k, df2), RIV: r, Imputed: p.M}, nil
+	quad := mat.Inner(d, &Wi, d) / (1 + r)
+	f, df2 := d1Reference(quad, k, p.M, r, p.Complete)
+	return FTest{Method: "D1", F: f, DF1: k, DF2: df2, P: fit.FSurvival(f, k, df2), RIV: r, Imputed: p.M, quad: quad, complete: p.Complete}, nil
 }
 
 // D3 pools likelihood-ratio tests. own[i] is the

@@ -33,7 +33,7 @@ func near(t *testing.T, what string, got, want, tol float64) {
 func TestIdenticalSets(t *testing.T) {
 	s := Set{Est: []float64{0.5, -1.25, 2}, Cov: []float64{0.04, 0.01, 0, 0.01, 0.09, 0.02, 0, 0.02, 0.25}}
 	sets := []Set{s, s, s, s}
-	p, err := Pool(sets, math.Inf(1))
+	p, err := Pool(sets, Complete{DF: math.Inf(1)})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -51,7 +51,7 @@ func TestIdenticalSets(t *testing.T) {
 		near(t, "total", p.Total[j], s.Cov[j], 1e-15)
 	}
 	// Barnard-Rubin with lambda = 0: df_obs = (n+1)/(n+3) n.
-	p2, _ := Pool(sets, 97)
+	p2, _ := Pool(sets, Complete{DF: 97})
 	near(t, "df with 97 complete-data df", p2.DF[0], 98.0/100*97, 1e-14)
 	// D1 of the last two parameters = the Wald statistic over 2, chi-square p.
 	C := []float64{0, 1, 0, 0, 0, 1}
@@ -77,7 +77,7 @@ func TestD1OneParameter(t *testing.T) {
 		{Est: []float64{0.9, 0.45}, Cov: []float64{0.06, 0.012, 0.012, 0.021}},
 		{Est: []float64{1.3, 0.38}, Cov: []float64{0.055, 0.008, 0.008, 0.019}},
 	}
-	p, err := Pool(sets, 120)
+	p, err := Pool(sets, Complete{DF: 120})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -96,13 +96,13 @@ func TestD1OneParameter(t *testing.T) {
 
 func TestPoolErrors(t *testing.T) {
 	s := Set{Est: []float64{1}, Cov: []float64{1}}
-	if _, err := Pool([]Set{s}, 10); err == nil || err.Error() != "pooling needs at least two imputed data sets, got 1" {
+	if _, err := Pool([]Set{s}, Complete{DF: 10}); err == nil || err.Error() != "pooling needs at least two imputed data sets, got 1" {
 		t.Errorf("one set: %v", err)
 	}
-	if _, err := Pool([]Set{s, {Est: []float64{1, 2}, Cov: []float64{1, 0, 0, 1}}}, 10); err == nil {
+	if _, err := Pool([]Set{s, {Est: []float64{1, 2}, Cov: []float64{1, 0, 0, 1}}}, Complete{DF: 10}); err == nil {
 		t.Error("sets of different sizes pooled")
 	}
-	if _, err := Pool([]Set{s, {Est: []float64{math.NaN()}, Cov: []float64{1}}}, 10); err == nil {
+	if _, err := Pool([]Set{s, {Est: []float64{math.NaN()}, Cov: []float64{1}}}, Complete{DF: 10}); err == nil {
 		t.Error("NaN pooled")
 	}
 	if _, err := D3([]float64{1}, []float64{1}, 1); err == nil {
@@ -174,11 +174,11 @@ func TestAgainstMice(t *testing.T) {
 	for k, r := range full {
 		sets[k] = Set{Est: r.Estimates, Cov: r.Cov}
 	}
-	p, err := Pool(sets, n-3)
+	p, err := Pool(sets, Complete{DF: n - 3})
 	if err != nil {
 		t.Fatal(err)
 	}
-	pinf, _ := Pool(sets, math.Inf(1))
+	pinf, _ := Pool(sets, Complete{DF: math.Inf(1)})
 	// Parameter order here: tau, x1, x2; glm models P(y = 1), the upper
 	// category, so its intercept is -tau and its slopes are these.
 	sign := []float64{-1, 1, 1}
@@ -201,7 +201,7 @@ func TestAgainstMice(t *testing.T) {
 	for k, r := range restricted {
 		s0[k] = Set{Est: r.Estimates, Cov: r.Cov}
 	}
-	p0, _ := Pool(s0, n-2)
+	p0, _ := Pool(s0, Complete{DF: n - 2})
 	own, at := make([]float64, m), make([]float64, m)
 	for k := range m {
 		own[k] = 2 * (full[k].LogLik - restricted[k].LogLik)
@@ -263,7 +263,7 @@ func TestPoolScalar(t *testing.T) {
 	for i := range q {
 		sets[i] = Set{Est: []float64{q[i]}, Cov: []float64{u[i]}}
 	}
-	p, _ := Pool(sets, 250)
+	p, _ := Pool(sets, Complete{DF: 250})
 	near(t, "estimate", s.Estimate, p.Estimate[0], 1e-15)
 	near(t, "total", s.Total, p.Total[0], 1e-15)
 	near(t, "df", s.DF, p.DF[0], 1e-15)
@@ -304,7 +304,7 @@ func TestD2(t *testing.T) {
 	near(t, "p", d.P, distFSurvival(6.0/7, 1, 49.0/8), 1e-15)
 
 	s := Set{Est: []float64{0.4, -0.2}, Cov: []float64{0.02, 0.005, 0.005, 0.03}}
-	p, _ := Pool([]Set{s, s, s}, math.Inf(1))
+	p, _ := Pool([]Set{s, s, s}, Complete{DF: math.Inf(1)})
 	d1, _ := D1(p, []float64{1, 0, 0, 1}, nil)
 	wald := d1.F * 2
 	d2, _ := D2([]float64{wald, wald, wald}, 2)
@@ -359,7 +359,7 @@ func TestPooledLinearIsPoolScalar(t *testing.T) {
 		{Est: []float64{1.2, -0.4, 0.1}, Cov: []float64{0.05, 0.012, 0.001, 0.012, 0.08, -0.01, 0.001, -0.01, 0.06}},
 		{Est: []float64{0.9, -0.7, 0.25}, Cov: []float64{0.045, 0.008, 0.002, 0.008, 0.1, -0.015, 0.002, -0.015, 0.055}},
 	}
-	p, err := Pool(sets, 120)
+	p, err := Pool(sets, Complete{DF: 120})
 	if err != nil {
 		t.Fatal(err)
 	}

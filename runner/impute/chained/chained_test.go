@@ -114,7 +114,7 @@ func TestRecoversEffectsMissingAtRandom(t *testing.T) {
 			f := analyse(t, s[0], s[1], s[2])
 			sets = append(sets, impute.Set{Est: f.Estimates, Cov: f.Cov})
 		}
-		pl, err := impute.Pool(sets, math.Inf(1))
+		pl, err := impute.Pool(sets, impute.Complete{DF: math.Inf(1)})
 		if err != nil {
 			t.Fatal(err)
 		}

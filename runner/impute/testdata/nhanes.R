@@ -5,10 +5,9 @@
 # each, pooled by pool(); pool.scalar for one coefficient with the
 # complete-data sample size; the t test of each coefficient (summary of
 # the pooled fit); D2 (mice::D2, Wald statistics combined by
-# mitml) of bmi and hyp; D1 of bmi and hyp by mitml's testModels without
-# complete-data degrees of freedom (D1's usual large-sample F reference;
-# mice::D1 passes the residual degrees of freedom and so gets a
-# small-sample denominator instead). Prints "name v1 v2 ..." lines with 17 significant
+# mitml) of bmi and hyp; D1 of bmi and hyp by mitml's testModels with
+# the complete-data degrees of freedom of lm, the residual ones (its
+# small-sample denominator, as mice::D1 passes them). Prints "name v1 v2 ..." lines with 17 significant
 # digits: the versions, every set's estimates and covariance, and what
 # mice computed from them.
 suppressPackageStartupMessages(library(mice))
@@ -46,5 +45,5 @@ out("scalar", c(ps$qbar, ps$ubar, ps$b, ps$t, ps$df, ps$r, ps$fmi))
 out("wald", wald)
 d2 <- D2(fit, fit0)
 out("d2", d2$result[1:5])
-d1 <- mitml::testModels(fit$analyses, fit0$analyses, method = "D1")
+d1 <- mitml::testModels(fit$analyses, fit0$analyses, method = "D1", df.com = df.residual(fit$analyses[[1]]))
 out("d1", d1$test[1:5])

@@ -2,9 +2,10 @@
 # regressions fitted with base R's glm on each imputed set imp1.csv ..
 # impM.csv (y 0/1, x numeric, g with levels a, b, c), by the
 # general-purpose multiple-imputation package mitml: testModels(method =
-# "D1") of y ~ x + g against y ~ x, with no complete-data degrees of
-# freedom (df.com = NULL: the large-sample reference of Li, Raghunathan and
-# Rubin). Prints "d1 F df1 df2 p RIV" with 17 significant digits.
+# "D1") of y ~ x + g against y ~ x, with the complete-data degrees of
+# freedom the rows less the parameters of the full model (df.com: the
+# small-sample denominator). Prints "d1 F df1 df2 p RIV" with 17
+# significant digits.
 suppressPackageStartupMessages(library(mitml))
 out <- function(name, v) cat(name, sprintf("%.17g", as.numeric(v)), "\n")
 m <- as.integer(readLines("m.txt"))
@@ -17,5 +18,5 @@ sets <- lapply(seq_len(m), function(i) {
 imp <- as.mitml.list(sets)
 full <- with(imp, glm(y ~ x + g, family = binomial, control = ctl))
 null <- with(imp, glm(y ~ x, family = binomial, control = ctl))
-tm <- testModels(full, null, method = "D1")
+tm <- testModels(full, null, method = "D1", df.com = df.residual(full[[1]]))
 out("d1", tm$test[1, c("F.value", "df1", "df2", "P(>F)", "RIV")])
