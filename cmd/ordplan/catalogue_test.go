@@ -882,7 +882,7 @@ func catalogue(dir string) (items []badInput) {
 		{id: "W20", name: "imputed sets whose cluster ids differ from the data file's", args: []string{"run"}, setup: imputedClusterData,
 			plan: edit("  file: d.csv\n", "  file: clu.csv\n  cluster: three\n  imputed: {file: imp-clu-both.csv, column: imp}\n", "rules:", "covariance: clustered\nrules:"), code: 1,
 			lines: true, // run warns first that AIC ignores the clusters (W7)
-			want: []string{`data.imputed: imputed set 1, imp-clu-both.csv (imp = 1), line 2: the cluster column "three" (data.cluster) is "z" where the data file clu.csv, line 2, has "k"; cluster ids are not imputed`, `: an imputed set must keep every observed value of the data file: make the imputed sets again from clu.csv, or point data.file at the data they were made from`}},
+			want:  []string{`data.imputed: imputed set 1, imp-clu-both.csv (imp = 1), line 2: the cluster column "three" (data.cluster) is "z" where the data file clu.csv, line 2, has "k"; cluster ids are not imputed`, `: an imputed set must keep every observed value of the data file: make the imputed sets again from clu.csv, or point data.file at the data they were made from`}},
 		{id: "I7", name: "imputation number that is not a whole number", args: []string{"run"}, setup: imputedFiles,
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp-frac.csv, column: imp}\n"), code: 1,
 			want: []string{`imp-frac.csv:2: column imp: imputation number "1.5" is not a whole number 0 or more (0 marks the original data)`}},
