@@ -1,0 +1,121 @@
+package runner
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"ordplan/internal/rscript"
+)
+
+// TestPooledClusteredAgainstMitml: on imputed data under clustered errors
+// the pooled slopes' t, Barnard-Rubin degrees of freedom and p, and the
+// pooled Wald test (D1) of a three-level factor, against base R's glm with
+// a cluster-robust sandwich computed by hand on each imputed set and
+// pooled by the general-purpose multiple-imputation package mitml with
+// the complete-data degrees of freedom G-1 (testEstimates) and G-q
+// (testConstraints, whose F the script multiplies by (G-q)/(G-1));
+// script testdata/rcheck/clusterpool.R. With two categories the
+// cumulative logit model is glm's binary logistic regression, its slopes
+// the same. Data: invented (seeded): 300 rows in 12 sites with a site
+// effect, x missing in about a quarter of the rows and drawn at random
+// in each imputed set (any completed sets serve to check the pooling).
+func TestPooledClusteredAgainstMitml(t *testing.T) {
+	rscript.Require(t)
+	if !rscript.HasPackage(t, "mitml") {
+		t.Skip("the R package mitml is not installed (Debian: apt-get install r-cran-mitml): the check against it is skipped")
+	}
+	const m, n, sites = 5, 300, 12
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(20261204, 12))
+	levels := []string{"a", "b", "c"}
+	effect := make([]float64, sites)
+	for s := range effect {
+		effect[s] = 0.7 * rng.NormFloat64()
+	}
+	type row struct {
+		y, g, site int
+		x          float64
+		miss       bool
+	}
+	rows := make([]row, n)
+	var orig, stacked strings.Builder
+	orig.WriteString("y,x,g,site\n")
+	stacked.WriteString("imp,y,x,g,site\n")
+	for i := range rows {
+		s, g, x := i%sites, rng.IntN(3), rng.NormFloat64()
+		y := 0
+		if rng.Float64() < 1/(1+math.Exp(-(0.2+0.6*x+[]float64{0, 0.5, -0.4}[g]+effect[s]))) {
+			y = 1
+		}
+		rows[i] = row{y, g, s, x, rng.Float64() < 0.25}
+		xs := fmt.Sprintf("%.6f", x)
+		if rows[i].miss {
+			xs = ""
+		}
+		fmt.Fprintf(&orig, "%d,%s,%s,s%d\n", y, xs, levels[g], s)
+	}
+	for k := 1; k <= m; k++ {
+		var set strings.Builder
+		set.WriteString("y,x,g,site\n")
+		for _, r := range rows {
+			x := r.x
+			if r.miss {
+				x = rng.NormFloat64()
+			}
+			fmt.Fprintf(&set, "%d,%.6f,%s,s%d\n", r.y, x, levels[r.g], r.site)
+			fmt.Fprintf(&stacked, "%d,%d,%.6f,%s,s%d\n", k, r.y, x, levels[r.g], r.site)
+		}
+		os.WriteFile(filepath.Join(dir, fmt.Sprintf("imp%d.csv", k)), []byte(set.String()), 0o644)
+	}
+	os.WriteFile(filepath.Join(dir, "orig.csv"), []byte(orig.String()), 0o644)
+	os.WriteFile(filepath.Join(dir, "stacked.csv"), []byte(stacked.String()), 0o644)
+	os.WriteFile(filepath.Join(dir, "m.txt"), []byte(fmt.Sprintln(m)), 0o644)
+	src := strings.Replace(xgPlan("{file: orig.csv, cluster: site, imputed: {file: stacked.csv, column: imp}}", "parallel", "aic"),
+		"rules:", "covariance: clustered\ninference: {hypotheses: [\"g = 0\"]}\nrules:", 1)
+	or := runPlan(t, planIn(t, dir, src), 0).Outcomes[0]
+	if or.Imputed == nil || or.Chosen == nil || or.Chosen.Pooled == nil {
+		t.Fatalf("not a pooled fit: %+v", or.Chosen)
+	}
+	res := or.Chosen.Result
+	want := rscript.Run(t, dir, "testdata/rcheck/clusterpool.R")
+	if g := want.Scalar(t, "clusters"); g != sites || res.Clusters != sites || res.RefDF != sites-1 {
+		t.Fatalf("clusters: R %g, the fit %d (reference df %g), want %d", g, res.Clusters, res.RefDF, sites)
+	}
+	near := func(what string, got, want float64) {
+		t.Helper()
+		if d := math.Abs(got - want); !(d <= 1e-6*math.Max(1e-3, math.Abs(want))) {
+			t.Errorf("%s: %.10g, R %.10g", what, got, want)
+		}
+	}
+	// The slopes follow the one threshold: x, g.b, g.c.
+	for j, name := range []string{"x", "gb", "gc"} {
+		i := j + 1
+		inf := res.ParamInference(i, 0.95)
+		w := want.Get(t, name) // estimate, se, t, df, p
+		for _, c := range []struct {
+			what      string
+			got, want float64
+		}{{"estimate", res.Estimates[i], w[0]}, {"std. error", res.StdErrors[i], w[1]}, {"t", inf.Stat, w[2]}, {"df", res.DF[i], w[3]}, {"p", inf.P, w[4]}} {
+			near(res.ParamNames[i]+" "+c.what, c.got, c.want)
+		}
+	}
+	var h *HypothesisResult
+	for i := range or.Hypotheses {
+		if or.Hypotheses[i].Model == or.Chosen.ID {
+			h = &or.Hypotheses[i]
+		}
+	}
+	if h == nil || !h.Test.OK || h.Test.Pooled != "D1" || h.Test.DF != 2 {
+		t.Fatalf("hypothesis g = 0: %+v", h)
+	}
+	d1 := want.Get(t, "d1") // F, df1, df2, p, RIV
+	near("D1 F", h.Test.Chi2/2, d1[0])
+	near("D1 df2", h.Test.DF2, d1[2])
+	near("D1 p", h.Test.P, d1[3])
+	t.Logf("G = %d: x t = %.4f on %.2f df; D1 F(2, %.2f) = %.5f, p %.5g (mitml F(2, %.2f) scaled, p %.5g)", res.Clusters, res.ParamInference(1, 0.95).Stat, res.DF[1], h.Test.DF2, h.Test.Chi2/2, h.Test.P, d1[2], d1[3])
+}
