@@ -106,11 +106,10 @@ func finish(src *source, m Model, ly *layout, st newtonState, opt Options) (*Res
 	}
 	// Phase 2: is the maximum finite, and was it reached?
 	info := negated(st.hess)
-	v, dir := src.certify(r, ly, st, info)
+	v, dir, rec := src.certify(r, ly, st, info)
 	switch {
 	case v == verdictSeparated || v == verdictDiverging:
-		r.Separation = src.describeSeparation(ly, dir)
-		r.Separation.Proved = v == verdictSeparated
+		r.Separation = src.describeSeparation(m, ly, st.theta, dir, rec)
 		return r.fail(StatusNoFiniteMaximum, separationMessage(r, st)), nil
 	case !st.converged:
 		msg := fmt.Sprintf("Newton-Raphson stopped after %d iterations: %s (max |score| %.3g)", st.iters, st.reason, r.MaxAbsScore)
@@ -316,21 +315,20 @@ const (
 // fit, and on larger ones whose estimates or errors look diverging or
 // that showed a sign). It returns the verdict and the direction behind
 // it (scaled coordinates): the sign's, or the programme's when it alone
-// found one.
-func (src *source) certify(r *Result, ly *layout, st newtonState, info []float64) (verdict, []float64) {
+// found one. A separation's verdict comes with the programme's direction
+// of recession (rec), which describeSeparation names.
+func (src *source) certify(r *Result, ly *layout, st newtonState, info []float64) (verdict, []float64, *recession) {
 	flagged, dir, suspect := src.divergenceSigns(r, ly, st, info)
-	found, v := src.recessionDirection(r, ly, st.theta, st.ll, info, suspect || flagged)
+	found, rec := src.recessionDirection(r, ly, st.theta, st.ll, suspect || flagged)
 	switch {
-	case found == recessionFound && flagged:
-		return verdictSeparated, dir
 	case found == recessionFound:
-		return verdictSeparated, v
+		return verdictSeparated, scaledDirection(rec.step, info), rec
 	case !flagged:
-		return verdictFinite, dir
+		return verdictFinite, dir, nil
 	case found == recessionNone && programmeDecides(r.Model):
-		return verdictFlat, dir
+		return verdictFlat, dir, nil
 	}
-	return verdictDiverging, dir
+	return verdictDiverging, dir, nil
 }
 
 // divergenceSigns looks for the signs that the log-likelihood keeps
@@ -1001,19 +999,116 @@ func invertSym(A []float64, P int) ([]float64, error) {
 	return out, nil
 }
 
-// describeSeparation names the parameters along the direction in which the
-// information vanishes and, when the rows are at hand, finds categories that
-// occur at one value only of a predictor.
-func (src *source) describeSeparation(ly *layout, vec []float64) *Separation {
-	s := &Separation{}
-	if vec == nil {
+// describeSeparation names the parameters of a fit with no finite maximum
+// and, when the rows are at hand, finds categories that occur at one value
+// only of a predictor. With the programme's direction of recession rec the
+// separation is proved, and the parameters are named by nameRecession:
+// those that diverge and those the log-likelihood does not depend on;
+// without it, those along the direction vec (scaled coordinates) in which
+// the signs were seen.
+func (src *source) describeSeparation(m Model, ly *layout, theta, vec []float64, rec *recession) *Separation {
+	s := &Separation{Proved: rec != nil}
+	switch {
+	case rec != nil:
+		src.nameRecession(s, m, ly, theta, rec)
+	case vec != nil:
+		s.nameDirection(ly, vec, src.predictors, src.categories)
+	default:
 		return s
 	}
-	s.nameDirection(ly, vec, src.predictors, src.categories)
 	if src.rows != nil {
 		s.addEvidence(src.rows)
 	}
 	return s
+}
+
+// nameRecession names the parameters of a proved separation. The changes
+// of the parameters that move no linear predictor a row's probability
+// reads leave the log-likelihood constant: the null space of the
+// programme's inequalities written in the parameters themselves (their
+// tangent at theta, tangentVariables; exact for all but constrained
+// effects), found from the singular values of that matrix (columns
+// scaled to largest absolute value 1, each the largest change of a
+// linear predictor per unit of its parameter; a singular value below
+// 1e-9 of the largest counts as zero). A parameter carrying a quarter or
+// more of some unit vector of that null space is not determined by the
+// data (NotDetermined). The direction of recession without its part in
+// the null space is the change along which the log-likelihood rises to its
+// supremum: the parameters carrying a quarter or more of its largest
+// component (in the same scaled units) diverge (Parameters), with their
+// predictors and category boundaries.
+func (src *source) nameRecession(s *Separation, m Model, ly *layout, theta []float64, rec *recession) {
+	P := len(theta)
+	M := recessionRows(src.rows, rec.rows, m, ly, tangentVariables(ly, theta))
+	u := make([]float64, P)
+	for i := range u {
+		u[i] = rec.step[i] * M.scale[i]
+	}
+	var null [][]float64
+	if M.R > 0 {
+		var svd mat.SVD
+		if svd.Factorize(mat.NewDense(M.R, M.V, M.a), mat.SVDFullV) {
+			sv := svd.Values(nil)
+			var V mat.Dense
+			svd.VTo(&V)
+			for j := 0; j < P; j++ {
+				if j >= len(sv) || !(sv[j] > 1e-9*sv[0]) {
+					null = append(null, mat.Col(nil, j, &V))
+				}
+			}
+		}
+	}
+	share := make([]float64, P) // the diagonal of the projection on the null space
+	for _, n := range null {
+		dot := 0.0
+		for i, v := range n {
+			dot += v * u[i]
+		}
+		for i, v := range n {
+			share[i] += v * v
+			u[i] -= dot * v
+		}
+	}
+	s.nameDirection(ly, u, src.predictors, src.categories)
+	for i, sh := range share {
+		if sh >= 1.0/16 {
+			s.NotDetermined = append(s.NotDetermined, ly.params[i].name)
+		}
+	}
+}
+
+// tangentVariables are the parameters as variables of the programme: the
+// change of the cutpoints and slopes per unit of each parameter at theta
+// (for phi_m g_k, phi_m per unit of g_k and g_k per unit of phi_m).
+func tangentVariables(ly *layout, theta []float64) []lpVariable {
+	q, K := ly.J-1, ly.K
+	vars := make([]lpVariable, len(ly.params))
+	for i, pa := range ly.params {
+		if pa.kind == pCut {
+			vars[i] = lpVariable{cut: pa.m}
+			continue
+		}
+		w := make([]float64, q*K)
+		switch pa.kind {
+		case pParallel:
+			for j := 0; j < q; j++ {
+				w[j*K+pa.k] = 1
+			}
+		case pFree:
+			w[pa.m*K+pa.k] = 1
+		case pGamma:
+			phi := ly.phi(theta, pa.group)
+			for j := 0; j < q; j++ {
+				w[j*K+pa.k] = phi[j]
+			}
+		case pPhi:
+			for _, k := range ly.groups[pa.group] {
+				w[pa.m*K+k] = theta[ly.slope[k]]
+			}
+		}
+		vars[i] = lpVariable{cut: -1, w: w}
+	}
+	return vars
 }
 
 // nameDirection lists the parameters that carry a quarter or more of the
@@ -1191,7 +1286,11 @@ func separationMessage(r *Result, st newtonState) string {
 		if s.Proved {
 			what = "diverging"
 		}
-		fmt.Fprintf(&b, " (%s: %s)", what, strings.Join(s.Parameters, ", "))
+		fmt.Fprintf(&b, " (%s: %s", what, strings.Join(s.Parameters, ", "))
+		if len(s.NotDetermined) > 0 {
+			fmt.Fprintf(&b, "; %s: %s", notDeterminedWords, strings.Join(s.NotDetermined, ", "))
+		}
+		b.WriteString(")")
 	}
 	reached := "approaches"
 	if s == nil || !s.Proved {
@@ -1200,3 +1299,7 @@ func separationMessage(r *Result, st newtonState) string {
 	fmt.Fprintf(&b, " [log-likelihood %s %.6f; information condition %.2g]", reached, st.ll, r.Condition)
 	return b.String()
 }
+
+// notDeterminedWords introduces the parameters of Separation.NotDetermined
+// in a message.
+const notDeterminedWords = "not determined, the log-likelihood being constant along them"

@@ -250,10 +250,17 @@ type Result struct {
 
 // Separation describes a fit with no finite maximum.
 type Separation struct {
-	Parameters []string `json:"parameters"` // parameters that diverge
-	Predictors []string `json:"predictors"`
-	Boundaries []string `json:"boundaries"` // "lower/upper" category boundaries involved
+	// Parameters: those that diverge when Proved (along the direction of
+	// recession, in which the log-likelihood rises to its supremum); else
+	// those along the direction in which the signs were seen.
+	Parameters []string `json:"parameters"`
+	Predictors []string `json:"predictors"` // the predictors of Parameters, and of Evidence
+	Boundaries []string `json:"boundaries"` // "lower/upper" category boundaries of Parameters
 	Evidence   []string `json:"evidence"`   // data facts such as `category "1" occurs only at temp = 0`
+	// NotDetermined (Proved only) are the parameters along which the
+	// log-likelihood is constant: no row's probability reads them (or
+	// only a combination of them), so the data do not determine them.
+	NotDetermined []string `json:"not_determined,omitempty"`
 	// Proved: a direction of recession was found in the data (the
 	// log-likelihood keeps rising along it); false when only the signs
 	// were seen (a singular information, a ray along which the

@@ -111,14 +111,22 @@ const (
 	recessionFound
 )
 
+// recession is a direction of recession found by the programme and
+// followed on the log-likelihood: step, the change of the parameters from
+// the estimates to the farther point checked (the parameters' own units),
+// and rows, the distinct rows the programme ran on.
+type recession struct {
+	step []float64
+	rows []int
+}
+
 // recessionDirection looks for a direction of recession of the model at
 // the estimates theta: the programme over the data's distinct rows for
 // each way the constraint groups may move, and the ray it finds checked
 // on the log-likelihood (which must not fall along it). suspect says the
 // estimates or errors look diverging (a larger programme is then worth
-// its cost). It returns the verdict and, when one is found, the direction
-// in scaled coordinates.
-func (src *source) recessionDirection(r *Result, ly *layout, theta []float64, ll float64, info []float64, suspect bool) (recessionVerdict, []float64) {
+// its cost). It returns the verdict and, when one is found, the direction.
+func (src *source) recessionDirection(r *Result, ly *layout, theta []float64, ll float64, suspect bool) (recessionVerdict, *recession) {
 	d := src.rows
 	if d == nil || len(ly.params) != len(theta) || d.J < 2 {
 		return recessionUnknown, nil
@@ -159,8 +167,8 @@ func (src *source) recessionDirection(r *Result, ly *layout, theta []float64, ll
 			}
 			continue
 		}
-		if v := src.followRecession(ly, theta, ll, info, vars, dir, mv); v != nil {
-			return recessionFound, v
+		if step := src.followRecession(ly, theta, ll, vars, dir, mv); step != nil {
+			return recessionFound, &recession{step: step, rows: rows}
 		}
 		verdict = recessionUnknown
 	}
@@ -611,8 +619,8 @@ func refactor(basis []int, col func(int, []float64), Binv, xb, rhs []float64) bo
 // path of the parameters and checks that the log-likelihood does not fall
 // along it at two distances (the largest change of a linear predictor's
 // piece 5 and 20 units): the guard against rounding in the programme. It
-// returns the direction in scaled coordinates or nil.
-func (src *source) followRecession(ly *layout, theta []float64, ll float64, info []float64, vars []lpVariable, dir []float64, mv groupMove) []float64 {
+// returns the change of the parameters to the farther point, or nil.
+func (src *source) followRecession(ly *layout, theta []float64, ll float64, vars []lpVariable, dir []float64, mv groupMove) []float64 {
 	q, K := ly.J-1, ly.K
 	dtau := make([]float64, q)
 	dB := make([]float64, q*K)
@@ -706,7 +714,7 @@ func (src *source) followRecession(ly *layout, theta []float64, ll float64, info
 	for i := range step {
 		step[i] = far[i] - theta[i]
 	}
-	return scaledDirection(step, info)
+	return step
 }
 
 // wideErrors reports whether some cutpoint's or slope's standard error
