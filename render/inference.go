@@ -111,8 +111,8 @@ func writeNewRows(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		return
 	}
 	neg := 0
-	for _, b := range nr.Pred.Negative {
-		if b {
+	for i, b := range nr.Pred.Negative {
+		if b && nr.Predicted(i) {
 			neg++
 		}
 	}
@@ -122,7 +122,27 @@ func writeNewRows(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		d.p("On imputed data each number was predicted on each of the %d imputed sets by that set's fit and pooled by Rubin's rules: the prediction is the mean over the sets, its standard error the square root of the mean squared delta-method error plus (1 + 1/%d) times the variance between the sets, and each standard error is followed by its Barnard-Rubin degrees of freedom (`df_...`, empty when the sets agree) ; the intervals use t on them. The most likely category is that of the pooled probabilities; a row is flagged negative when a pooled probability or any set's is.",
 			or.Imputed.M, or.Imputed.M)
 	}
+	writeNotPredicted(d, or)
 	writeNewRowsOutside(d, or)
+}
+
+// writeNotPredicted says which new rows are not predicted because a term
+// cannot be computed for them (runner.NewRows.Unpredicted).
+func writeNotPredicted(d *doc, or *runner.OutcomeResult) {
+	nr := or.NewRows
+	if len(nr.Unpredicted) == 0 {
+		return
+	}
+	d.p("**Not predicted:** %d of the %d rows are not predicted: a term of the model cannot be computed for them (a transformation undefined at the row's value), so the model says nothing of them. The other rows are predicted. In `%s` their predictions are empty and `outside_why` begins with `not predicted:` and the reason; decisions.json's `new_rows_not_predicted` lists every one.",
+		len(nr.Unpredicted), nr.Rows.N, predictionsFile(or))
+	var rows [][]string
+	for _, u := range nr.Unpredicted[:min(len(nr.Unpredicted), newRowsListed)] {
+		rows = append(rows, []string{strconv.Itoa(u.Line), u.Reason})
+	}
+	d.captioned("New rows not predicted").table([]string{"Line", "Why"}, rows)
+	if len(nr.Unpredicted) > newRowsListed {
+		d.p("The first %d are listed.", newRowsListed)
+	}
 }
 
 // skippedListed is how many new rows skipped for a missing value the
@@ -312,6 +332,16 @@ func predictionsCSV(r *runner.Result, or *runner.OutcomeResult) []byte {
 		b.WriteString(strconv.Itoa(nr.Rows.Lines[i]))
 		for _, c := range nr.Rows.Cells[i] {
 			b.WriteString("," + csvCell(c))
+		}
+		if !nr.Predicted(i) {
+			// Every prediction cell empty, then outside_why led by the reason.
+			b.WriteString(strings.Repeat(",", len(head)-len(in)-4))
+			why := []string{"not predicted: " + nr.NotPredicted[i]}
+			if nr.Outside != nil {
+				why = append(why, nr.Outside[i]...)
+			}
+			fmt.Fprintf(&b, ",,true,%s\n", csvCell(strings.Join(why, "; ")))
+			continue
 		}
 		for j := 0; j < J; j++ {
 			num(pr.Prob[i*J+j], pr.SE[i*J+j], dProb, i*J+j, 0, 1)

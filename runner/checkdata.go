@@ -45,9 +45,11 @@ func CheckData(p *plan.Plan) ([]string, error) {
 		// transformation cannot take), so that check finds what run would
 		// stop on only after fitting every model.
 		if a.Inference.PredictPath != "" {
-			if _, err := readNewRows(a, &OutcomeResult{Design: ld.Design, dataOptions: r.Options}); err != nil {
+			nr, err := readNewRows(a, &OutcomeResult{Design: ld.Design, dataOptions: r.Options})
+			if err != nil {
 				return nil, err
 			}
+			warnings = append(warnings, nr.notPredictedWarnings()...)
 		}
 		if a.Imputed != nil {
 			if _, _, _, err := imputedSets(a, r); err != nil {

@@ -1,6 +1,7 @@
 package runner
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"slices"
@@ -66,6 +67,72 @@ type NewRows struct {
 	Outside [][]string      `json:"-"`
 	Flagged []NewRowOutside `json:"-"`
 	Notes   []string        `json:"-"`
+	// NotPredicted gives, per row, why it is not predicted ("": it is;
+	// nil: every row is): a term cannot be computed for it (designOf);
+	// Unpredicted the rows so, by line.
+	NotPredicted []string             `json:"-"`
+	Unpredicted  []NewRowNotPredicted `json:"-"`
+}
+
+// NewRowNotPredicted is a new row that is not predicted: its line and
+// why (a term cannot be computed for it).
+type NewRowNotPredicted struct {
+	Line   int    `json:"line"`
+	Reason string `json:"reason"`
+}
+
+// designOf makes the new rows' design row by row: a row that a term's
+// transformation cannot take (design.UndefinedError: the log of 0, say)
+// is not predicted, with the reason (NotPredicted; its design row is
+// left 0 and its predictions are not written), and the others are; any
+// other error (a level the model has no effect of) stops, naming the
+// row. The data's rows are never so treated: the model is fitted to
+// them, and such a value there is refused.
+func (nr *NewRows) designOf(dz *design.Design) ([]float64, int, error) {
+	rows := nr.Rows
+	S, K := len(dz.Sources), len(dz.Columns)
+	X := make([]float64, rows.N*K)
+	for i := 0; i < rows.N; i++ {
+		x := X[i*K : (i+1)*K]
+		err := dz.Row(rows.X[i*S:(i+1)*S], x)
+		var u *design.UndefinedError
+		switch {
+		case err == nil:
+			continue
+		case !errors.As(err, &u):
+			return nil, i, err
+		}
+		clear(x)
+		if nr.NotPredicted == nil {
+			nr.NotPredicted = make([]string, rows.N)
+		}
+		nr.NotPredicted[i] = u.Reason()
+		nr.Unpredicted = append(nr.Unpredicted, NewRowNotPredicted{Line: rows.Lines[i], Reason: u.Reason()})
+	}
+	return X, -1, nil
+}
+
+// notPredictedWarnings are the warnings of `ordplan check` for the new
+// rows that will not be predicted, one per row, at most newRowsWarned
+// (then one saying how many more).
+func (nr *NewRows) notPredictedWarnings() []string {
+	var out []string
+	for k, u := range nr.Unpredicted {
+		if k == newRowsWarned {
+			out = append(out, fmt.Sprintf("inference.predict: %d more rows of %s will not be predicted", len(nr.Unpredicted)-k, nr.File))
+			break
+		}
+		out = append(out, fmt.Sprintf("inference.predict: %s:%d: %s: this row will not be predicted (the other rows will be)", nr.File, u.Line, u.Reason))
+	}
+	return out
+}
+
+// newRowsWarned is how many new rows check warns of one by one.
+const newRowsWarned = 10
+
+// Predicted reports whether new row i is predicted.
+func (nr *NewRows) Predicted(i int) bool {
+	return nr.NotPredicted == nil || nr.NotPredicted[i] == ""
 }
 
 // runInference computes what the plan's inference section asks for.
@@ -138,6 +205,9 @@ func readNewRows(an *Analysis, or *OutcomeResult) (*NewRows, error) {
 	}
 	nr.Rows = rows
 	X, i, err := or.Design.Matrix(rows.X, rows.N)
+	if err != nil {
+		X, i, err = nr.designOf(or.Design)
+	}
 	if err != nil {
 		return nil, fmt.Errorf("%s: inference.predict: %s:%d: %v", an.Source, rows.File, rows.Lines[i], err)
 	}

@@ -97,6 +97,10 @@ type OutcomeDecisions struct {
 	// missing value, every one, with the columns each misses; absent
 	// when none.
 	NewRowsSkipped []NewRowSkipped `json:"new_rows_skipped,omitempty"`
+	// NewRowsNotPredicted: the new rows that are not predicted because a
+	// term cannot be computed for them (the log of 0, say), with the
+	// reason; absent when none.
+	NewRowsNotPredicted []NewRowNotPredicted `json:"new_rows_not_predicted,omitempty"`
 	// Terms: how each predictor term became design columns, with every
 	// constant frozen from the data (omitted when every term is a numeric
 	// column as it is).
@@ -302,6 +306,7 @@ func BuildDecisions(r *Result) *Decisions {
 		if or.NewRows != nil {
 			od.NewRowsOutside = or.NewRows.Flagged
 			od.NewRowsSkipped = SkippedNewRows(or.NewRows.Rows)
+			od.NewRowsNotPredicted = or.NewRows.Unpredicted
 		}
 		d.Outcomes = append(d.Outcomes, od)
 	}

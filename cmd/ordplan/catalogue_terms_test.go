@@ -1,6 +1,8 @@
 package main
 
 import (
+	"bytes"
+	"encoding/csv"
 	"fmt"
 	"math"
 	"math/rand/v2"
@@ -284,6 +286,44 @@ func termItems(dir string) []badInput {
 				dec, err := os.ReadFile(filepath.Join(dir, "T25-out", "decisions.json"))
 				if want := `"new_rows_outside": [`; err != nil || !strings.Contains(string(dec), want) || !strings.Contains(string(dec), `"line": 4,`) {
 					t.Errorf("decisions.json does not list the rows outside (%v)", err)
+				}
+			}},
+		{id: "T29", name: "a new row to predict that a term cannot be computed for (log of 0): that row not predicted, the others are", args: []string{"run"},
+			setup: func(t *testing.T, dir, _ string) {
+				writeTermsData(t, dir, "")
+				os.WriteFile(filepath.Join(dir, "zero.csv"), []byte("id,site,x\nok,north,1\nzero,east,0\n"), 0o644)
+			},
+			plan: termsEdit("predictors:", "subset:\n  - {column: x, at_least: 0}\npredictors:", "[site, x]", "[site, {name: lx, column: x, log: {shift: 0}}]", "rules:", "inference: {predict: zero.csv}\nrules:"), code: 0,
+			want: []string{"y: chosen: cumulative/parallel/logit"},
+			check: func(t *testing.T, dir, out, errs string) {
+				plan := filepath.Join(dir, "T29.yaml")
+				_, e, code := runCLI("check", plan)
+				if want := "warning: " + plan + `: inference.predict: zero.csv:3: column "x": log(0) is undefined: the value is not positive: this row will not be predicted (the other rows will be)` + "\n"; code != 0 || !strings.Contains(e, want) {
+					t.Errorf("check: exit %d, want the warning %q in\n%s", code, want, e)
+				}
+				b, err := os.ReadFile(filepath.Join(dir, "T29-out", "predictions-y.csv"))
+				if err != nil {
+					t.Fatal(err)
+				}
+				lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+				if len(lines) != 3 || !strings.HasPrefix(lines[1], "2,ok,north,1,0.") || !strings.HasSuffix(lines[1], ",false,false,") {
+					t.Fatalf("predictions-y.csv: want the row ok predicted, got\n%s", b)
+				}
+				if want := `,,true,"not predicted: column ""x"": log(0) is undefined: the value is not positive; extrapolation: x 0 is beyond the range of the rows the model was fitted to, 0.507 to 3.5"`; !strings.HasPrefix(lines[2], "3,zero,east,0,,,") || !strings.HasSuffix(lines[2], want) {
+					t.Errorf("predictions-y.csv: the row zero, want empty predictions ending in %s, got\n%s", want, lines[2])
+				}
+				if recs, err := csv.NewReader(bytes.NewReader(b)).ReadAll(); err != nil || len(recs[2]) != len(recs[0]) {
+					t.Errorf("predictions-y.csv: the row zero has not the header's columns (%v)", err)
+				}
+				rep, err := os.ReadFile(filepath.Join(dir, "T29-out", "report.md"))
+				for _, want := range []string{"**Not predicted:** 1 of the 2 rows are not predicted: a term of the model cannot be computed for them", `| 3 | column "x": log(0) is undefined: the value is not positive |`} {
+					if err != nil || !strings.Contains(string(rep), want) {
+						t.Errorf("report.md (%v): want %q", err, want)
+					}
+				}
+				dec, err := os.ReadFile(filepath.Join(dir, "T29-out", "decisions.json"))
+				if want := `"new_rows_not_predicted": [`; err != nil || !strings.Contains(string(dec), want) {
+					t.Errorf("decisions.json does not list the row not predicted (%v)", err)
 				}
 			}},
 		{id: "T26", name: "pairs of levels at a profile that gives no level of another categorical predictor (warned, held at its reference level)", args: []string{"run"}, setup: writeCellsData,

@@ -140,28 +140,62 @@ func distinct(u []float64) int {
 	return len(slices.Compact(s))
 }
 
-// pre applies log or sqrt to one raw value.
+// pre applies log or sqrt to one raw value; the message says why it
+// cannot, with the advice for a data row (undefinedAt).
 func pre(tr Transform, x float64) (float64, string) {
+	y, why, advice := undefinedAt(tr, x)
+	if advice != "" {
+		why += " (" + advice + ")"
+	}
+	return y, why
+}
+
+// undefinedAt applies log or sqrt to one raw value; why says why it
+// cannot ("" when it can), advice what a plan may change for a data row
+// ("" when nothing is to say).
+func undefinedAt(tr Transform, x float64) (y float64, why, advice string) {
 	switch {
 	case tr.Log:
 		y := x + tr.Shift
 		if !(y > 0) {
 			if tr.Shift != 0 {
-				return 0, fmt.Sprintf("log(%s + %s) is undefined: the value plus the shift is not positive", fmtNum(x), fmtNum(tr.Shift))
+				return 0, fmt.Sprintf("log(%s + %s) is undefined: the value plus the shift is not positive", fmtNum(x), fmtNum(tr.Shift)), ""
 			}
 			if x < 0 {
-				return 0, fmt.Sprintf("log(%s) is undefined: the value is negative, and a logarithm needs positive values", fmtNum(x))
+				return 0, fmt.Sprintf("log(%s) is undefined: the value is negative, and a logarithm needs positive values", fmtNum(x)), ""
 			}
-			return 0, fmt.Sprintf("log(%s) is undefined: the value is not positive (state a shift for zeros: log: {shift: 1})", fmtNum(x))
+			return 0, fmt.Sprintf("log(%s) is undefined: the value is not positive", fmtNum(x)), "state a shift for zeros: log: {shift: 1}"
 		}
-		return math.Log(y), ""
+		return math.Log(y), "", ""
 	case tr.Sqrt:
 		if x < 0 {
-			return 0, fmt.Sprintf("sqrt(%s) is undefined: the value is negative", fmtNum(x))
+			return 0, fmt.Sprintf("sqrt(%s) is undefined: the value is negative", fmtNum(x)), ""
 		}
-		return math.Sqrt(x), ""
+		return math.Sqrt(x), "", ""
 	}
-	return x, ""
+	return x, "", ""
+}
+
+// UndefinedError is a raw value that a term's transformation cannot take
+// (the log of a value not positive, the square root of a negative one):
+// the design row of that row cannot be made. Why says so; Advice is what
+// a plan may change when the row is one of the data's.
+type UndefinedError struct {
+	Column, Why, Advice string
+}
+
+func (e *UndefinedError) Error() string {
+	s := fmt.Sprintf("column %q: %s", e.Column, e.Why)
+	if e.Advice != "" {
+		s += " (" + e.Advice + ")"
+	}
+	return s
+}
+
+// Reason is the error without the advice: why the row's design cannot be
+// made, for a row no plan change is meant for (a new row to predict).
+func (e *UndefinedError) Reason() string {
+	return fmt.Sprintf("column %q: %s", e.Column, e.Why)
 }
 
 // dpre is the derivative of pre at x.
@@ -182,9 +216,9 @@ func dpre(tr Transform, x float64) float64 {
 // their derivatives in x when der is not nil.
 func (t *Term) numericColumns(x float64, out, der []float64) error {
 	tr := t.Transform
-	u, msg := pre(tr, x)
-	if msg != "" {
-		return fmt.Errorf("%s", msg)
+	u, why, advice := undefinedAt(tr, x)
+	if why != "" {
+		return &UndefinedError{Why: why, Advice: advice}
 	}
 	du := dpre(tr, x)
 	switch tr.Centre {

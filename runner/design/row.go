@@ -60,6 +60,10 @@ func (d *Design) row(raw, out []float64, s int, der []float64) error {
 				}
 			}
 			if err := t.numericColumns(raw[t.Source], o, td); err != nil {
+				if u, ok := err.(*UndefinedError); ok {
+					u.Column = d.Sources[t.Source].Name
+					return u
+				}
 				return fmt.Errorf("column %q: %v", d.Sources[t.Source].Name, err)
 			}
 		case KindInteraction:
