@@ -77,7 +77,8 @@ func (c *citer) list() []string {
 	return out
 }
 
-// writeMethods writes a methods paragraph for each outcome, ready to paste
+// writeMethods writes the methods paragraphs of each outcome (the data,
+// the predictors, the models and what was made of them), ready to paste
 // and edit, and the references it cites.
 func writeMethods(d *doc, r *runner.Result) {
 	d.h(2, "Methods (draft)")
@@ -108,13 +109,18 @@ func writeMethods(d *doc, r *runner.Result) {
 		case ds.RowsOutside > 0 || ds.RowsUndecided > 0:
 			s = append(s, subsetMethods(p, ds, p.Data.Imputes()))
 		case ds.RowsDropped > 0:
-			s = append(s, fmt.Sprintf("Of %d rows, %d were used; %d were dropped for missing values or zero weight before any model was fitted.", ds.RowsRead, ds.N, ds.RowsDropped))
+			s = append(s, fmt.Sprintf("Of %d rows, %d were used; %d were dropped before any model was fitted%s.", ds.RowsRead, ds.N, ds.RowsDropped, dropReasons(p, ds)))
 		default:
 			s = append(s, fmt.Sprintf("All %d rows were used.", ds.N))
 		}
 		if im := or.Imputed; im != nil {
 			s = append(s, imputationMethods(im, or.Design, p.Data.Cluster, c))
 		}
+		d.p("%s", strings.Join(s, " "))
+		if pm := predictorsMethods(p, or); pm != "" {
+			d.p("%s", pm)
+		}
+		s = nil
 		var comps []string
 		for _, a := range p.Models.Approaches {
 			switch a {
@@ -132,9 +138,9 @@ func writeMethods(d *doc, r *runner.Result) {
 			case fit.ParallelEffects:
 				effects = append(effects, "parallel effects")
 			case fit.PartialEffects:
-				effects = append(effects, "partial effects free to differ across category boundaries for a subset of predictors "+c.cite("peterson"))
+				effects = append(effects, "partial effects free to differ across category boundaries"+partialSetWords(r, or, false)+" "+c.cite("peterson"))
 			case fit.ConstrainedEffects:
-				effects = append(effects, "partial effects constrained to a common factor across boundaries "+c.cite("peterson", "hauser"))
+				effects = append(effects, "partial effects constrained to a common factor across boundaries"+partialSetWords(r, or, true)+" "+c.cite("peterson", "hauser"))
 			case fit.NonparallelEffects:
 				effects = append(effects, "fully nonparallel effects")
 			case fit.StereotypeEffects:
@@ -148,7 +154,7 @@ func writeMethods(d *doc, r *runner.Result) {
 		s = append(s, fmt.Sprintf("The candidate models, %s (plan SHA-256 %s%s), crossed %s with %s, using the %s link%s.",
 			fixed, short(p.Hash), registeredAs(r), words.AndList(comps), words.AndList(effects), words.AndList(wordList(p.Models.Links)), plural(len(p.Models.Links))))
 		if sel := p.Models.Partial.Select; sel != nil {
-			s = append(s, fmt.Sprintf("The predictors allowed non-parallel effects were selected by backward stepwise imposition of parallel constraints with %s tests at alpha = %g %s.", sel.Test.Title(), sel.Alpha, c.cite("williams")))
+			s = append(s, fmt.Sprintf("The predictors allowed non-parallel effects were selected by backward stepwise imposition of parallel constraints with %s tests at alpha = %g %s, separately for each approach under the %s link%s; %s.", sel.Test.Title(), sel.Alpha, c.cite("williams"), p.Models.Links[0], firstLink(p.Models.Links), selectedWords(or)))
 		}
 		if len(p.Tests.ParallelLines) > 0 && binary(or) {
 			s = append(s, "With two categories the parallel-lines assumption has nothing to test (every effect structure gives the same model), so no parallel-lines test was computed.")
@@ -325,11 +331,162 @@ func subsetMethods(p *plan.Plan, ds *data.Dataset, imputed bool) string {
 		}
 		undecided += "."
 	}
-	used := fmt.Sprintf("Of the %d rows that met the conditions, %d were used and %d were dropped for missing values or zero weight before any model was fitted.", in, ds.N, in-ds.N)
+	why := " for missing values or zero weight"
+	if ds.RowsUndecided == 0 {
+		// Every row counted under a missing column met the conditions.
+		why = dropReasons(p, ds)
+	}
+	used := fmt.Sprintf("Of the %d rows that met the conditions, %d were used and %d were dropped before any model was fitted%s.", in, ds.N, in-ds.N, why)
 	if in == ds.N {
 		used = fmt.Sprintf("All %d rows that met the conditions were used.", in)
 	}
 	return fmt.Sprintf("Of %d rows, %s.%s %s", ds.RowsRead, words.AndList(parts), undecided, used)
+}
+
+// dropReasons says why the rows dropped for missing values or zero
+// weight (not those outside the subset) were dropped, with the counts
+// when there are several reasons, to follow "N were dropped": "" when
+// none were.
+func dropReasons(p *plan.Plan, ds *data.Dataset) string {
+	var miss []data.DropCount
+	missing, zero := 0, 0
+	for _, dc := range ds.Dropped {
+		switch {
+		case dc.Subset:
+		case dc.ZeroWeight(p.Data.Weights):
+			zero += dc.Rows
+		default:
+			missing += dc.Rows
+			miss = append(miss, dc)
+		}
+	}
+	var missWhy, zeroWhy string
+	switch {
+	case len(miss) == 1:
+		missWhy = "for a missing value of " + mdText(miss[0].Column)
+	case len(miss) > 1:
+		cols := make([]string, len(miss))
+		for i, dc := range miss {
+			cols[i] = fmt.Sprintf("%s %d", mdText(dc.Column), dc.Rows)
+		}
+		missWhy = fmt.Sprintf("for missing values (each row counted under the first used column it misses: %s)", strings.Join(cols, ", "))
+	}
+	if zero > 0 {
+		zeroWhy = "for a weight of 0 in " + mdCode(p.Data.Weights)
+	}
+	switch {
+	case missWhy != "" && zeroWhy != "":
+		return fmt.Sprintf(": %d %s and %d %s", missing, missWhy, zero, zeroWhy)
+	case missWhy != "":
+		return " " + missWhy
+	case zeroWhy != "":
+		return " " + zeroWhy
+	}
+	return ""
+}
+
+// predictorsMethods says how every term of the outcome enters the models,
+// in the words of the table of terms (runner.DescribedTerms): terms
+// described alike listed together, in the order of the first of them;
+// then the offset.
+func predictorsMethods(p *plan.Plan, or *runner.OutcomeResult) string {
+	var s []string
+	terms := or.DescribedTerms()
+	if len(terms) > 0 {
+		var what []string
+		names := map[string][]string{}
+		for _, t := range terms {
+			if names[t[1]] == nil {
+				what = append(what, t[1])
+			}
+			names[t[1]] = append(names[t[1]], mdText(t[0]))
+		}
+		items := make([]string, len(what))
+		for i, w := range what {
+			items[i] = words.AndList(names[w]) + ", " + mdText(w)
+		}
+		if n := len(items); n > 1 {
+			items[n-1] = "and " + items[n-1]
+		}
+		s = append(s, fmt.Sprintf("Every candidate model held %d term%s: %s.", len(terms), plural(len(terms)), strings.Join(items, "; ")))
+	}
+	if p.Data.Offset != "" {
+		s = append(s, fmt.Sprintf("The linear predictor also held the offset %s, with its coefficient fixed at 1.", mdCode(p.Data.Offset)))
+	}
+	return strings.Join(s, " ")
+}
+
+// partialSetWords names, to follow the description of the partial
+// (constrained false) or constrained models, the predictors they free:
+// the plan's partial set by name, with the constraint groups of
+// constrained models (runner.ConstrainedGroups), or a pointer to the
+// stepwise selection that chose them.
+func partialSetWords(r *runner.Result, or *runner.OutcomeResult, constrained bool) string {
+	switch {
+	case (r.Plan.Models.Partial.Select != nil || len(or.FreeSets) == 0) && constrained:
+		return " for the same predictors, in one group"
+	case r.Plan.Models.Partial.Select != nil || len(or.FreeSets) == 0:
+		return " for the predictors a stepwise selection left free"
+	case len(or.FreeSets[0].Predictors) == 0:
+		return " for no predictor (the plan's partial set holds none of the terms, so none was fitted)"
+	case !constrained:
+		return " for " + words.AndList(mdTexts(or.FreeSets[0].Predictors))
+	}
+	groups := runner.ConstrainedGroups(r.Analysis.Models, or.Terms, or.FreeSets[0].Predictors)
+	if len(groups) == 1 {
+		w := " for " + words.AndList(mdTexts(groups[0].Predictors))
+		if groups[0].Name != "" {
+			w += " (group " + mdText(groups[0].Name) + ")"
+		}
+		return w
+	}
+	var parts []string
+	for _, g := range groups {
+		parts = append(parts, mdText(g.Name)+": "+words.AndList(mdTexts(g.Predictors)))
+	}
+	return ", one for each group of predictors (" + strings.Join(parts, "; ") + ")"
+}
+
+// selectedWords says which predictors the stepwise selection left free
+// in each approach's partial and constrained models.
+func selectedWords(or *runner.OutcomeResult) string {
+	var left, failed []string
+	for _, s := range or.Stepwise {
+		switch {
+		case s.Result == nil || !s.Result.OK:
+			failed = append(failed, s.Approach.String())
+		case len(s.Result.FinalNonparallel) == 0:
+			left = append(left, fmt.Sprintf("no predictor free in the %s models (so none of their partial or constrained models was fitted)", s.Approach))
+		default:
+			left = append(left, fmt.Sprintf("%s free in the %s models", words.AndList(mdTexts(s.Result.FinalNonparallel)), s.Approach))
+		}
+	}
+	var out []string
+	if len(left) > 0 {
+		out = append(out, "it left "+words.AndList(left))
+	}
+	if len(failed) > 0 {
+		out = append(out, fmt.Sprintf("for the %s models it could not be completed, so none of their partial or constrained models was fitted", words.AndList(failed)))
+	}
+	return strings.Join(out, "; ")
+}
+
+// firstLink says, after the link of a stepwise selection, that its
+// partial sets serve every link when the plan fits several.
+func firstLink(links []fit.Link) string {
+	if len(links) > 1 {
+		return " (the first listed), its partial sets serving every link"
+	}
+	return ""
+}
+
+// mdTexts is mdText of each name.
+func mdTexts(names []string) []string {
+	out := make([]string, len(names))
+	for i, n := range names {
+		out[i] = mdText(n)
+	}
+	return out
 }
 
 func plural(n int) string {

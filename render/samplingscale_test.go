@@ -140,7 +140,7 @@ report: {timestamp: false}
 	}
 	md := string(files["report.md"])
 	hasAll(t, "report.md (constant weights 1/n)", md,
-		fmt.Sprintf("knots at sample quantiles %s, %s, %s", fmt.Sprintf("%.6g", q(0.1)), fmt.Sprintf("%.6g", q(0.5)), fmt.Sprintf("%.6g", q(0.9))),
+		fmt.Sprintf("knots at %.6g, %.6g and %.6g, the 0.1, 0.5 and 0.9 quantiles of z over the rows used, weighted by w", q(0.1), q(0.5), q(0.9)),
 		fmt.Sprintf("(%s)", fmt.Sprintf("%.3f", sd)))
 	_ = x
 }

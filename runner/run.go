@@ -219,6 +219,26 @@ func freeFor(sets []FreeSet, approach fit.Comparison) []string {
 	return nil
 }
 
+// ConstrainedGroups gives the constraint groups, by term, of the
+// constrained models of an approach whose partial set is free: the plan's
+// groups, each kept to the outcome's terms (a group with none of them
+// left out), or one group of the whole partial set when the plan names no
+// group that is left or selects the partial set stepwise.
+func ConstrainedGroups(m plan.Models, terms []fit.Term, free []string) []Group {
+	var groups []Group
+	if m.Partial.Select == nil {
+		for _, g := range m.Partial.Groups {
+			if len(columnsOf(terms, g.Predictors)) > 0 {
+				groups = append(groups, Group{Name: g.Name, Predictors: termsIn(terms, g.Predictors)})
+			}
+		}
+	}
+	if len(groups) == 0 {
+		groups = []Group{{Predictors: free}}
+	}
+	return groups
+}
+
 // gridJobs lists the candidate fits in plan order, then the auxiliary fits.
 func gridJobs(an *Analysis, terms []fit.Term, sets []FreeSet, backward bool) ([]*FitEntry, []string) {
 	var jobs []*FitEntry
@@ -228,12 +248,6 @@ func gridJobs(an *Analysis, terms []fit.Term, sets []FreeSet, backward bool) ([]
 		if !have[e.ID] {
 			have[e.ID] = true
 			jobs = append(jobs, e)
-		}
-	}
-	var groups []Group
-	for _, g := range an.Models.Partial.Groups {
-		if cols := columnsOf(terms, g.Predictors); len(cols) > 0 {
-			groups = append(groups, Group{Name: g.Name, Predictors: cols})
 		}
 	}
 	cols := allColumns(terms)
@@ -255,9 +269,11 @@ func gridJobs(an *Analysis, terms []fit.Term, sets []FreeSet, backward bool) ([]
 					notes = append(notes, fmt.Sprintf("%s not fitted: every predictor is in the partial set, so the model equals %s", id, cellID(a, bw, fit.NonparallelEffects.String(), l)))
 					continue
 				}
-				g := groups
-				if s == fit.ConstrainedEffects && (len(g) == 0 || an.Models.Partial.Select != nil) {
-					g = []Group{{Predictors: free}}
+				var g []Group
+				if s == fit.ConstrainedEffects {
+					for _, tg := range ConstrainedGroups(an.Models, terms, freeTerms) {
+						g = append(g, Group{Name: tg.Name, Predictors: columnsOf(terms, tg.Predictors)})
+					}
 				}
 				spec, err := EffectsSpec(a, bw, l, s, cols, free, g)
 				e := &FitEntry{ID: id, Approach: a, Effects: s, Link: l, Spec: spec}

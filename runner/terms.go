@@ -4,8 +4,10 @@ import (
 	"errors"
 	"fmt"
 	"slices"
+	"strconv"
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/runner/data"
 	"ordplan/runner/design"
 	"ordplan/runner/fit"
@@ -104,35 +106,92 @@ func termsIn(ts []fit.Term, names []string) []string {
 	return out
 }
 
-// TermDescriptions says, for the report, how each term that is not a
-// plain numeric column became design columns: the term, what it is, its
-// columns. It is empty when every term is a numeric column as it is.
+// TermDescriptions says, for the report's table of terms, how each term
+// that is not a plain numeric column became design columns: the term,
+// what it is (DescribedTerms), its columns. It is empty when every term
+// is a numeric column as it is.
 func (or *OutcomeResult) TermDescriptions() [][3]string {
 	if or.Design == nil || or.Design.Trivial() {
 		return nil
 	}
-	return describeTerms(or.Design)
+	return or.DescribedTerms()
 }
 
-func describeTerms(dz *design.Design) [][3]string {
+// DescribedTerms says in words how every term of the outcome enters the
+// models, for the table of terms and the methods paragraph alike: the
+// term, what it is (a phrase that can follow the term's name in a
+// sentence, constants taken from the data stated with the rows they come
+// from), its design columns.
+func (or *OutcomeResult) DescribedTerms() [][3]string {
+	if or.Design == nil {
+		return nil
+	}
+	rows := "the rows used"
+	if or.Imputed != nil {
+		rows = "the rows of the first imputed set"
+	}
+	if w := or.dataOptions.Weights; w != "" {
+		rows += ", weighted by " + w
+	}
+	return describeTerms(or.Design, rows)
+}
+
+// describeTerms describes every term of dz; rows says which rows the
+// constants taken from the data come from.
+func describeTerms(dz *design.Design, rows string) [][3]string {
 	var out [][3]string
 	for _, r := range dz.Records() {
-		what := "numeric column as it is"
+		var what string
 		switch r.Kind {
 		case design.KindCategorical:
-			what = fmt.Sprintf("categorical %s, %s coding, reference %q, levels %s", r.Reads[0], r.Coding, r.Reference, strings.Join(r.Levels, ", "))
-			if len(r.Dropped) > 0 {
-				what += fmt.Sprintf(" (never observed, dropped: %s)", strings.Join(r.Dropped, ", "))
-			}
-			what += levelColumns(r)
+			what = describeCategorical(r)
 		case design.KindInteraction:
-			what = "interaction of " + strings.Join(dz.Terms[dz.Term(r.Term)].PartNames(dz), " and ")
+			what = "the interaction of " + words.AndList(dz.Terms[dz.Term(r.Term)].PartNames(dz)) + ", the products of their columns"
 		default:
-			if r.Log || r.Sqrt || r.CentreAt != nil || r.ScaledBy != nil || r.Poly > 0 || len(r.Knots) > 0 {
-				what = describeNumeric(r)
-			}
+			what = describeNumeric(r, rows)
 		}
 		out = append(out, [3]string{r.Term, what, strings.Join(r.Columns, ", ")})
+	}
+	return out
+}
+
+// describeCategorical says how a categorical term is coded: its column
+// when the term has another name, the levels kept (and those dropped for
+// having no row), the coding and its reference level.
+func describeCategorical(r design.TermRecord) string {
+	what := "categorical"
+	if r.Reads[0] != r.Term {
+		what += " column " + r.Reads[0]
+	}
+	what += " with levels " + words.AndList(levelWords(r.Levels))
+	if n := len(r.Dropped); n > 0 {
+		what += fmt.Sprintf(" (%s %s, declared but in no row used, dropped)", map[bool]string{true: "level", false: "levels"}[n == 1], words.AndList(levelWords(r.Dropped)))
+	}
+	switch r.Coding {
+	case design.Sum:
+		what += fmt.Sprintf(" in sum-to-zero coding, one column per level other than the reference level %s, which is -1 in every column", levelWord(r.Reference))
+	case design.Successive:
+		what += fmt.Sprintf(" in successive-difference coding, one column per level after the first (%s), each 1 at its level and above and 0 below", levelWord(r.Levels[0]))
+	default:
+		what += fmt.Sprintf(" in treatment coding, one 0/1 column per level other than the reference level %s", levelWord(r.Reference))
+	}
+	return what + levelColumns(r)
+}
+
+// levelWord writes a level in a list of levels: as it is, or quoted when
+// it is empty or holds a space or punctuation that would blur the list.
+func levelWord(l string) string {
+	if l == "" || strings.ContainsAny(l, " ,;:()\"'") {
+		return strconv.Quote(l)
+	}
+	return l
+}
+
+// levelWords is levelWord of each level.
+func levelWords(ls []string) []string {
+	out := make([]string, len(ls))
+	for i, l := range ls {
+		out[i] = levelWord(l)
 	}
 	return out
 }
@@ -161,41 +220,83 @@ func levelColumns(r design.TermRecord) string {
 	if plain {
 		return ""
 	}
-	return "; " + strings.Join(pairs, ", ")
+	return " (" + strings.Join(pairs, ", ") + ")"
 }
 
-func describeNumeric(r design.TermRecord) string {
-	v := r.Reads[0]
+// describeNumeric says how a numeric term is made from its column: the
+// column as recorded, or its value after log or square root, centring and
+// scaling written as a formula, then the polynomial or spline basis, with
+// every constant taken from the data and the rows it was taken from.
+func describeNumeric(r design.TermRecord, rows string) string {
+	col := r.Reads[0]
+	v := col
 	switch {
-	case r.Log && r.Shift != 0:
-		v = fmt.Sprintf("log(%s + %g)", v, r.Shift)
+	case r.Log && r.Shift > 0:
+		v = fmt.Sprintf("log(%s + %g)", col, r.Shift)
+	case r.Log && r.Shift < 0:
+		v = fmt.Sprintf("log(%s - %g)", col, -r.Shift)
 	case r.Log:
-		v = fmt.Sprintf("log(%s)", v)
+		v = fmt.Sprintf("log(%s)", col)
 	case r.Sqrt:
-		v = fmt.Sprintf("sqrt(%s)", v)
+		v = fmt.Sprintf("sqrt(%s)", col)
 	}
+	of := v // the value the sample constants are of
+	var where []string
+	if r.Log {
+		where = append(where, "log is the natural logarithm")
+	}
+	mean := r.CentreAt != nil && r.CentreBy == "sample mean"
 	if r.CentreAt != nil {
-		v = fmt.Sprintf("(%s - %.6g)", v, *r.CentreAt)
-		if r.CentreBy == "sample mean" {
-			v += " [sample mean]"
-		}
+		v = fmt.Sprintf("%s - %.6g", v, *r.CentreAt)
 	}
 	if r.ScaledBy != nil {
-		v = fmt.Sprintf("%s / %.6g [sample SD]", v, *r.ScaledBy)
+		if r.CentreAt != nil {
+			v = "(" + v + ")"
+		}
+		v = fmt.Sprintf("%s / %.6g", v, *r.ScaledBy)
 	}
 	switch {
+	case mean && r.ScaledBy != nil:
+		where = append(where, fmt.Sprintf("%.6g and %.6g are the mean and standard deviation of %s over %s", *r.CentreAt, *r.ScaledBy, of, rows))
+	case mean:
+		where = append(where, fmt.Sprintf("%.6g is the mean of %s over %s", *r.CentreAt, of, rows))
+	case r.ScaledBy != nil:
+		where = append(where, fmt.Sprintf("%.6g is the standard deviation of %s over %s", *r.ScaledBy, of, rows))
+	}
+	// The value a basis is of, named u when it is a formula.
+	in, u := v, v
+	if strings.Contains(v, " ") {
+		in, u = "u = "+v, "u"
+	}
+	var what string
+	switch {
+	case r.Poly > 0 && r.PolyBasis == "raw":
+		what = fmt.Sprintf("a raw polynomial of degree %d in %s (powers 1 to %d of %s, not orthogonalized)", r.Poly, in, r.Poly, u)
 	case r.Poly > 0:
-		return fmt.Sprintf("%s polynomial of degree %d in %s", r.PolyBasis, r.Poly, v)
+		what = fmt.Sprintf("an orthogonal polynomial of degree %d in %s (columns orthogonal to each other and to a constant over %s, each with a sum of squares of 1)", r.Poly, in, rows)
 	case len(r.Knots) > 0:
 		ks := make([]string, len(r.Knots))
 		for i, k := range r.Knots {
 			ks[i] = fmt.Sprintf("%.6g", k)
 		}
-		where := "stated knots"
+		what = fmt.Sprintf("a natural cubic spline in %s with knots at %s", in, words.AndList(ks))
 		if len(r.KnotsAt) > 0 {
-			where = "knots at sample quantiles"
+			ps := make([]string, len(r.KnotsAt))
+			for i, p := range r.KnotsAt {
+				ps[i] = fmt.Sprintf("%g", p)
+			}
+			what += fmt.Sprintf(", the %s quantiles of %s over %s", words.AndList(ps), u, rows)
 		}
-		return fmt.Sprintf("natural cubic spline in %s, %s %s", v, where, strings.Join(ks, ", "))
+		what += ", linear beyond the outer two"
+	case len(where) == 0 && col == r.Term:
+		return "numeric as recorded"
+	case len(where) == 0 && v == col:
+		return "the numeric column " + col + " as recorded"
+	default:
+		what = v
 	}
-	return v
+	if len(where) > 0 {
+		what += ", where " + words.AndList(where)
+	}
+	return what
 }

@@ -594,22 +594,83 @@ func TestExecutorWithTerms(t *testing.T) {
 
 // The report's description of a categorical term pairs each column with
 // its level when a column name does not spell the level as written, and
-// says nothing more when every name does.
+// says nothing more when every name does; a level holding a space is
+// quoted in the list of levels.
 func TestDescribeTermsPairsColumnsWithLevels(t *testing.T) {
 	for _, c := range []struct {
 		levels []string
 		want   string
 	}{
-		{[]string{"main road", "cul-de-sac", "cul de sac"}, `categorical g, treatment coding, reference "main road", levels main road, cul-de-sac, cul de sac; g.cul_de_sac is "cul-de-sac", g.cul_de_sac_3 is "cul de sac"`},
-		{[]string{"a", "b", "c"}, `categorical g, treatment coding, reference "a", levels a, b, c`},
+		{[]string{"main road", "cul-de-sac", "cul de sac"}, `categorical with levels "main road", cul-de-sac and "cul de sac" in treatment coding, one 0/1 column per level other than the reference level "main road" (g.cul_de_sac is "cul-de-sac", g.cul_de_sac_3 is "cul de sac")`},
+		{[]string{"a", "b", "c"}, `categorical with levels a, b and c in treatment coding, one 0/1 column per level other than the reference level a`},
 	} {
 		spec := design.Spec{Sources: []design.Source{{Name: "g", Cat: &design.Categorical{Levels: c.levels, Coding: design.Treatment}}}, Terms: []design.TermSpec{{Name: "g", Source: "g"}}}
 		dz, err := design.Build(spec, []float64{0, 1, 2, 1}, 4, nil, nil)
 		if err != nil {
 			t.Fatal(err)
 		}
-		if got := describeTerms(dz)[0][1]; got != c.want {
+		if got := describeTerms(dz, "the rows used")[0][1]; got != c.want {
 			t.Errorf("got  %s\nwant %s", got, c.want)
+		}
+	}
+}
+
+// Every kind of term is described in words that let a reader rebuild its
+// columns: the transformation as a formula, each constant taken from the
+// data with what it is and the rows it came from, the basis, the coding
+// and reference level, the levels dropped, the parts of an interaction.
+// The constants are those of x = 1, ..., 5 worked by hand: mean 3,
+// standard deviation sqrt(10/4) = 1.58114, quantiles at p (n - 1) between
+// order statistics: 2, 3, 4 at 0.25, 0.5, 0.75.
+func TestDescribeTermsInWords(t *testing.T) {
+	cat := func(coding, ref string, levels ...string) *design.Categorical {
+		return &design.Categorical{Levels: levels, Coding: coding, Reference: ref, Unobserved: design.UnobservedDrop}
+	}
+	spec := design.Spec{
+		Sources: []design.Source{{Name: "x"}, {Name: "g", Cat: cat(design.Sum, "c", "a", "b", "c")}, {Name: "h", Cat: cat(design.Successive, "lo", "lo", "mid", "hi", "top")}},
+		Terms: []design.TermSpec{
+			{Name: "x", Source: "x"},
+			{Name: "x0", Source: "x"},
+			{Name: "lx", Source: "x", Transform: design.Transform{Log: true, Shift: 1}},
+			{Name: "ln", Source: "x", Transform: design.Transform{Log: true, Shift: -0.5}},
+			{Name: "z", Source: "x", Transform: design.Transform{Centre: "mean", Scale: true}},
+			{Name: "c40", Source: "x", Transform: design.Transform{Centre: "value", CentreAt: 4}},
+			{Name: "q", Source: "x", Transform: design.Transform{Sqrt: true, Poly: 2, PolyRaw: true}},
+			{Name: "o", Source: "x", Transform: design.Transform{Centre: "mean", Poly: 3}},
+			{Name: "s", Source: "x", Transform: design.Transform{Quantiles: []float64{0.25, 0.5, 0.75}}},
+			{Name: "k", Source: "x", Transform: design.Transform{Knots: []float64{1.5, 3, 4.5}}},
+			{Name: "g", Source: "g"},
+			{Name: "hh", Source: "h"},
+			{Name: "x&g", Interact: []string{"x", "g"}},
+		},
+	}
+	raw := []float64{1, 0, 0, 2, 1, 1, 3, 2, 2, 4, 0, 1, 5, 1, 0} // h never at "top"
+	dz, err := design.Build(spec, raw, 5, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := map[string]string{
+		"x":   "numeric as recorded",
+		"x0":  "the numeric column x as recorded",
+		"lx":  "log(x + 1), where log is the natural logarithm",
+		"ln":  "log(x - 0.5), where log is the natural logarithm",
+		"z":   "(x - 3) / 1.58114, where 3 and 1.58114 are the mean and standard deviation of x over R",
+		"c40": "x - 4",
+		"q":   "a raw polynomial of degree 2 in sqrt(x) (powers 1 to 2 of sqrt(x), not orthogonalized)",
+		"o":   "an orthogonal polynomial of degree 3 in u = x - 3 (columns orthogonal to each other and to a constant over R, each with a sum of squares of 1), where 3 is the mean of x over R",
+		"s":   "a natural cubic spline in x with knots at 2, 3 and 4, the 0.25, 0.5 and 0.75 quantiles of x over R, linear beyond the outer two",
+		"k":   "a natural cubic spline in x with knots at 1.5, 3 and 4.5, linear beyond the outer two",
+		"g":   "categorical with levels a, b and c in sum-to-zero coding, one column per level other than the reference level c, which is -1 in every column",
+		"hh":  "categorical column h with levels lo, mid and hi (level top, declared but in no row used, dropped) in successive-difference coding, one column per level after the first (lo), each 1 at its level and above and 0 below",
+		"x&g": "the interaction of x and g, the products of their columns",
+	}
+	got := describeTerms(dz, "R")
+	if len(got) != len(want) {
+		t.Fatalf("%d descriptions for %d terms", len(got), len(want))
+	}
+	for _, d := range got {
+		if d[1] != want[d[0]] {
+			t.Errorf("%s:\n got  %s\n want %s", d[0], d[1], want[d[0]])
 		}
 	}
 }

@@ -112,7 +112,7 @@ func TestSubsetColumnMissing(t *testing.T) {
 		}
 		md, _ := os.ReadFile(filepath.Join(out, "report.md"))
 		used := met - incomplete
-		wantUsed := fmt.Sprintf("Of the %d rows that met the conditions, %d were used and %d were dropped for missing values or zero weight before any model was fitted.", met, used, incomplete)
+		wantUsed := fmt.Sprintf("Of the %d rows that met the conditions, %d were used and %d were dropped before any model was fitted for missing values or zero weight.", met, used, incomplete)
 		notImputed := ""
 		if mode == "impute" {
 			used = met

@@ -13,6 +13,13 @@ type DropCount struct {
 	Subset bool   `json:"subset,omitempty"` // dropped by the plan's subset, not for a missing value
 }
 
+// ZeroWeight reports whether dc counts the rows whose weight, in the
+// column weights ("" = none), is 0, rather than rows missing a column or
+// outside the subset.
+func (dc DropCount) ZeroWeight(weights string) bool {
+	return weights != "" && !dc.Subset && dc.Column == weights+" = 0"
+}
+
 // LevelRef is one level of a categorical predictor column.
 type LevelRef struct {
 	Column string

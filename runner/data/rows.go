@@ -562,7 +562,7 @@ func (r *reader) noneKept(d *Dataset, subset bool) error {
 	if d.RowsOutside > 0 {
 		why = "missing values or the subset"
 	}
-	if opt.Weights != "" && slices.ContainsFunc(d.Dropped, func(dc DropCount) bool { return dc.Column == opt.Weights+" = 0" }) {
+	if opt.Weights != "" && slices.ContainsFunc(d.Dropped, func(dc DropCount) bool { return dc.ZeroWeight(opt.Weights) }) {
 		why = "missing values or zero weight"
 	}
 	return r.fail(0, "", "all %d data rows were dropped for %s (%s)", d.RowsRead, why, dropList(d.Dropped))
