@@ -184,18 +184,29 @@ func chosenCell(res *fit.Result, k int) string {
 
 // boundaryChart draws one predictor's slopes across the boundaries.
 func boundaryChart(d *doc, pred string, bounds []string, est, se, crit []float64, level float64, par *runner.FitEntry, chosen *fit.Result, chosenLevel string, k int) *chart {
-	id := d.chartID()
 	q := len(bounds)
 	lo, hi := make([]float64, q), make([]float64, q)
 	for m := range est {
 		lo[m], hi[m] = est[m]-crit[m]*se[m], est[m]+crit[m]*se[m]
 	}
 	band := pct(level) + " interval"
+	legend := []string{"nonparallel", band}
+	if chosen != nil {
+		legend = append(legend, chosenLevel+" (chosen)")
+	}
+	if par != nil {
+		legend = append(legend, "parallel")
+	}
+	// Long category names make long boundary names: they turn, shortened
+	// to an ellipsis beyond a width (the tooltip and the table above give
+	// them whole), and the axis name moves below them.
+	labels := layoutCategories(bounds, 10, chartTextWidth-50, 130)
+	fr := &chartFrame{id: d.chartID(), title: pred, subtitle: "slope at each boundary", height: 340 + int(labels.extent-labels.upright(10)),
+		grid: opts.Grid{Left: leftFor(labels, "4%"), Right: "6%", Top: "60", Bottom: "60"}, legend: legend}
 	l := charts.NewLine()
-	l.SetGlobalOptions(append(baseOpts(id, pred, "slope at each boundary", 340,
-		opts.Grid{Left: "4%", Right: "6%", Top: "60", Bottom: "60"}),
-		charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: "boundary", NameLocation: "middle", NameGap: 28,
-			AxisLabel: &opts.AxisLabel{Interval: "0", FontSize: 10}}),
+	l.SetGlobalOptions(append(fr.opts(),
+		charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: "boundary", NameLocation: "middle", NameGap: int(labels.extent) + 7,
+			AxisLabel: labels.axisLabel(10)}),
 		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: "slope", Scale: opts.Bool(true)}))...)
 	l.SetXAxis(bounds)
 	l.AddSeries("nonparallel", lineData(est), lineStyle(colorEstimate, 2.5, false, true)...)
@@ -241,5 +252,5 @@ func boundaryChart(d *doc, pred string, bounds []string, est, se, crit []float64
 		}
 		fig.series = append(fig.series, figSeries{name: "parallel", color: colorParallel, ys: flat, legend: true})
 	}
-	return newChart(id, 340, caption+".", l).with(fig)
+	return newChart(fr, caption+".", l).with(fig)
 }

@@ -30,38 +30,88 @@ func (c *chart) with(f *figure) *chart {
 
 // echartsChart is what every go-echarts chart type offers.
 type echartsChart interface {
+	Accept(charts.ConfigurationVisitor)
 	Validate()
 	JSONNotEscaped() template.HTML
 }
 
-// newChart takes the option JSON of a go-echarts chart. The JSON object's
-// keys come out sorted and the numbers were rounded by val, so the same
-// inputs give the same text. "<" is escaped so that no label can end the
-// inline script the option is written into.
-func newChart(id string, height int, caption string, c echartsChart) *chart {
+// newChart takes the option JSON of a go-echarts chart drawn in frame
+// fr. The JSON object's keys come out sorted and the numbers were rounded
+// by val, so the same inputs give the same text. "<" is escaped so that
+// no label can end the inline script the option is written into.
+func newChart(fr *chartFrame, caption string, c echartsChart) *chart {
+	c.Accept(fitting{width: fr.legendWidth(), step: fr.xStep})
 	c.Validate()
 	js := strings.TrimSpace(string(c.JSONNotEscaped()))
 	js = strings.ReplaceAll(js, "<", `\u003c`)
 	var n int
-	fmt.Sscanf(id, "chart-%d", &n)
-	return &chart{number: n, id: id, height: height, caption: caption, option: js}
+	fmt.Sscanf(fr.id, "chart-%d", &n)
+	return &chart{number: n, id: fr.id, height: fr.height, caption: caption, option: js}
 }
 
-// baseOpts are the options every chart of the report shares: the fixed
-// element id (go-echarts draws a random one otherwise), no animation (the
-// chart is complete as soon as it is drawn), an axis tooltip and a legend
-// at the bottom, and the plot area's margins.
-func baseOpts(id, title, subtitle string, height int, grid opts.Grid) []charts.GlobalOpts {
+// chartFrame is what every chart of the report shares: its fixed element
+// id (go-echarts draws a random one otherwise), its title and subtitle,
+// its height and the plot area's margins, and its legend.
+type chartFrame struct {
+	id, title, subtitle string
+	height              int // pixels: with a one-line title and subtitle and a one-row legend
+	grid                opts.Grid
+	legend              []string // the legend's entries, at the bottom unless legendRight
+	legendRight         bool     // the legend stands right of the plot, one entry per line
+	xStep               int      // above 1: a label and tick at every xStep-th category only
+}
+
+// legendWidth is the most a legend entry may take before an ellipsis
+// shortens it: less beside the plot, where it narrows the plot.
+func (fr *chartFrame) legendWidth() int {
+	if fr.legendRight {
+		return legendRightMax
+	}
+	return legendTextMax
+}
+
+// opts are the frame's options: no animation (the chart is complete as
+// soon as it is drawn), an axis tooltip, the title and subtitle wrapped to
+// the chart's width and a legend at the bottom. Lines of the titles and
+// rows of the legend beyond the first make the chart taller (fr.height
+// grows) so that the plot keeps its size.
+func (fr *chartFrame) opts() []charts.GlobalOpts {
+	title, sub, extra := chartTitle(fr.title, fr.subtitle)
+	grid := fr.grid
 	grid.ContainLabel = opts.Bool(true)
+	grid.Top = addPixels(grid.Top, 60, extra)
+	fr.height += extra
+	if !fr.legendRight {
+		more := (legendRows(fr.legend) - 1) * legendRow
+		grid.Bottom = addPixels(grid.Bottom, 60, more)
+		fr.height += more
+	}
 	return []charts.GlobalOpts{
-		charts.WithInitializationOpts(opts.Initialization{ChartID: id, Width: "100%", Height: strconv.Itoa(height) + "px"}),
+		charts.WithInitializationOpts(opts.Initialization{ChartID: fr.id, Width: "100%", Height: strconv.Itoa(fr.height) + "px"}),
 		charts.WithAnimation(false),
-		charts.WithTitleOpts(opts.Title{Title: title, Subtitle: subtitle, Left: "center",
-			TitleStyle: &opts.TextStyle{FontSize: 14}}),
+		charts.WithTitleOpts(opts.Title{Title: title, Subtitle: sub, Left: "center",
+			TitleStyle: &opts.TextStyle{FontSize: titleSize, LineHeight: titleLine}, SubtitleStyle: &opts.TextStyle{FontSize: subtitleSize, LineHeight: subtitleLine}}),
 		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "axis"}),
 		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Bottom: "0"}),
 		charts.WithGridOpts(grid),
 	}
+}
+
+// addPixels adds px to a margin in pixels ("" stands for def); a margin
+// in per cent is a share of the chart and is left as it is.
+func addPixels(margin string, def, px int) string {
+	if px == 0 {
+		return margin
+	}
+	v := def
+	if margin != "" {
+		n, err := strconv.Atoi(margin)
+		if err != nil {
+			return margin
+		}
+		v = n
+	}
+	return strconv.Itoa(v + px)
 }
 
 // val rounds a number to six significant digits for a chart; a value

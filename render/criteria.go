@@ -7,6 +7,8 @@ import (
 	"github.com/go-echarts/go-echarts/v2/charts"
 	"github.com/go-echarts/go-echarts/v2/opts"
 
+	"gonum.org/v1/plot/vg"
+
 	"ordplan/runner"
 )
 
@@ -41,7 +43,6 @@ func criteriaChart(d *doc, or *runner.OutcomeResult, sampling bool) *chart {
 	if len(names) == 0 {
 		return nil
 	}
-	id := d.chartID()
 	chosen := "the chosen model is the large diamond"
 	if or.Chosen == nil {
 		chosen = "no model was chosen"
@@ -53,19 +54,24 @@ func criteriaChart(d *doc, or *runner.OutcomeResult, sampling bool) *chart {
 	if len(missing) > 0 {
 		caption += fmt.Sprintf(" Not shown, for want of a finite maximum or a fit: %s.", strings.Join(missing, ", "))
 	}
+	// The model names turn when they crowd the axis; the first one's
+	// reach to the left sets the left margin.
+	labels := layoutCategories(names, 11, chartTextWidth-60, 240)
+	fr := &chartFrame{id: d.chartID(), title: "Information criteria of the candidate models", subtitle: or.Outcome.Label, height: 440,
+		grid: opts.Grid{Left: leftFor(labels, "4%"), Right: "4%", Top: "70", Bottom: "50"}, legend: []string{"AIC", "BIC"}}
 	s := charts.NewScatter()
-	s.SetGlobalOptions(append(baseOpts(id, "Information criteria of the candidate models", or.Outcome.Label, 440,
-		opts.Grid{Left: "4%", Right: "4%", Top: "70", Bottom: "50"}),
-		charts.WithXAxisOpts(opts.XAxis{Type: "category", AxisLabel: &opts.AxisLabel{Rotate: 30, Interval: "0", FontSize: 11}}),
+	s.SetGlobalOptions(append(fr.opts(),
+		charts.WithXAxisOpts(opts.XAxis{Type: "category", AxisLabel: labels.axisLabel(11)}),
 		charts.WithYAxisOpts(opts.YAxis{Name: "criterion", Type: "value", Scale: opts.Bool(true)}))...)
 	s.SetXAxis(names)
 	s.AddSeries("AIC", aic, charts.WithItemStyleOpts(opts.ItemStyle{Color: colorEstimate}))
 	s.AddSeries("BIC", bic, charts.WithItemStyleOpts(opts.ItemStyle{Color: colorParallel}))
 	fig := newFigure("Information criteria of the candidate models", "", "criterion")
 	fig.xNames = names
+	fig.xNameMax = 7 * vg.Centimeter // model names are not long
 	fig.series = []figSeries{
 		{name: "AIC", color: colorEstimate, ys: aicV, points: true, noLine: true, legend: true},
 		{name: "BIC", color: colorParallel, ys: bicV, points: true, noLine: true, legend: true},
 	}
-	return newChart(id, 440, caption, s).with(fig)
+	return newChart(fr, caption, s).with(fig)
 }

@@ -246,10 +246,14 @@ func writePatternSplit(d *doc, or *runner.OutcomeResult) {
 // (points) against the expected share (line).
 func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 	t := or.Lipsitz.Table
-	id := d.chartID()
+	var legend []string
+	for _, lv := range t.Categories {
+		legend = append(legend, lv+" expected", lv+" observed")
+	}
+	fr := &chartFrame{id: d.chartID(), title: "Observed and expected by group of predicted score", subtitle: or.Chosen.ID, height: 420,
+		grid: opts.Grid{Left: "6%", Right: "8%", Top: "70", Bottom: "70"}, legend: legend}
 	l := charts.NewLine()
-	l.SetGlobalOptions(append(baseOpts(id, "Observed and expected by group of predicted score", or.Chosen.ID, 420,
-		opts.Grid{Left: "6%", Right: "8%", Top: "70", Bottom: "70"}),
+	l.SetGlobalOptions(append(fr.opts(),
 		charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: "group", NameLocation: "middle", NameGap: 28}),
 		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: "share of the group", Max: 1}))...)
 	groups := make([]string, t.Groups)
@@ -274,5 +278,5 @@ func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 			charts.WithLineStyleOpts(opts.LineStyle{Color: col, Width: 0, Opacity: opts.Float(0)}))...)
 	}
 	caption := "For each category, the expected share of each group (line) and the observed share (points). Points far from their line, in a pattern, show where the model misfits; groups are ordered by predicted score."
-	return newChart(id, 420, caption, l).with(fig)
+	return newChart(fr, caption, l).with(fig)
 }

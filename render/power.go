@@ -126,13 +126,18 @@ func writePowerHypotheses(d *doc, op simulate.OutcomePower) {
 	}
 	d.table(head, rows)
 	// Power against n, one line per hypothesis.
-	id := d.chartID()
 	l := charts.NewLine()
 	xs := make([]float64, len(op.Sizes))
 	for i, s := range op.Sizes {
 		xs[i] = float64(s.N)
 	}
-	l.SetGlobalOptions(append(baseOpts(id, "Power against sample size", op.Outcome+", simulated", 380, opts.Grid{Left: "8%", Right: "6%", Bottom: "18%"}),
+	var legend []string
+	for _, h := range op.Sizes[0].Hypotheses {
+		legend = append(legend, h.Hypothesis)
+	}
+	fr := &chartFrame{id: d.chartID(), title: "Power against sample size", subtitle: op.Outcome + ", simulated", height: 380,
+		grid: opts.Grid{Left: "8%", Right: "6%", Bottom: "68"}, legend: legend}
+	l.SetGlobalOptions(append(fr.opts(),
 		charts.WithXAxisOpts(opts.XAxis{Name: "n", Type: "value", Min: val(xs[0]), Max: val(xs[len(xs)-1])}),
 		charts.WithYAxisOpts(opts.YAxis{Name: "power", Type: "value", Min: 0, Max: 1}))...)
 	for hi, h := range op.Sizes[0].Hypotheses {
@@ -142,7 +147,7 @@ func writePowerHypotheses(d *doc, op simulate.OutcomePower) {
 		}
 		l.AddSeries(h.Hypothesis, xyData(xs, ys), lineStyle(categoryColor(hi, max(2, len(op.Sizes[0].Hypotheses))), 2, false, true)...)
 	}
-	d.charts("Chart in power.html: power of each hypothesis against n.", newChart(id, 380, "Power of each plan hypothesis (share of replicates whose chosen model rejects it) against the sample size.", l))
+	d.charts("Chart in power.html: power of each hypothesis against n.", newChart(fr, "Power of each plan hypothesis (share of replicates whose chosen model rejects it) against the sample size.", l))
 }
 
 func writePowerModels(d *doc, op simulate.OutcomePower, generator string) {

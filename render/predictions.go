@@ -123,7 +123,6 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 			neg++
 		}
 	}
-	id := d.chartID()
 	title := "Predicted probabilities by " + pf.focus
 	sub := or.Chosen.ID + "; other predictors at their means"
 	if label != "" {
@@ -153,10 +152,11 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 	}
 	fig := newFigure(title, pf.focus, "probability")
 	fig.yMin = 0
+	fr := &chartFrame{id: d.chartID(), title: title, subtitle: sub, height: 420, grid: predictionGrid, legend: res.Categories}
 	if pf.binary {
 		b := charts.NewBar()
-		b.SetGlobalOptions(append(baseOpts(id, title, sub, 420, predictionGrid),
-			charts.WithXAxisOpts(opts.XAxis{Name: pf.focus, Type: "category"}),
+		b.SetGlobalOptions(append(fr.opts(),
+			charts.WithXAxisOpts(opts.XAxis{Name: axisName(pf.focus), Type: "category"}),
 			charts.WithYAxisOpts(opts.YAxis{Name: "probability", Type: "value", Max: 1}))...)
 		var labels []string
 		for _, x := range xs {
@@ -178,11 +178,13 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 			fig.series = append(fig.series, figSeries{name: l, color: col, lo: append([]float64(nil), bottom...), hi: top, alpha: 1, bars: true, legend: true})
 			bottom = top
 		}
-		return newChart(id, 420, caption, b).with(fig), nil
+		return newChart(fr, caption, b).with(fig), nil
 	}
 	l := charts.NewLine()
-	l.SetGlobalOptions(append(baseOpts(id, title, sub, 420, predictionGrid),
-		charts.WithXAxisOpts(gridAxis(pf.focus)),
+	var axis opts.XAxis
+	axis, fr.xStep = gridAxis(pf.focus, gridLabels(xs), chartTextWidth-80)
+	l.SetGlobalOptions(append(fr.opts(),
+		charts.WithXAxisOpts(axis),
 		charts.WithYAxisOpts(opts.YAxis{Name: "probability", Type: "value", Min: 0}))...)
 	l.SetXAxis(gridLabels(xs))
 	for j, lv := range res.Categories {
@@ -218,7 +220,7 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 			fig.series[i].xs = xs
 		}
 	}
-	return newChart(id, 420, caption, l).with(fig), nil
+	return newChart(fr, caption, l).with(fig), nil
 }
 
 // cumulativeChart stacks the category probabilities over the focus
@@ -230,7 +232,6 @@ func cumulativeChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 	if err != nil {
 		return nil, err
 	}
-	id := d.chartID()
 	title := "Cumulative probabilities by " + pf.focus
 	sub := or.Chosen.ID + "; other predictors at their means"
 	if label != "" {
@@ -242,18 +243,25 @@ func cumulativeChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 	l := charts.NewLine()
 	// The legend stands right of the plot, one entry per line, the
 	// categories in their order from the bottom up as the layers are: the
-	// highest at the top (the static figure lists them so too).
-	widest := 0
+	// highest at the top (the static figure lists them so too). Long
+	// names are shortened with an ellipsis (the tooltip gives them whole)
+	// so that the legend leaves the plot most of the chart's width.
+	widest := 0.0
 	for _, c := range res.Categories {
-		widest = max(widest, len([]rune(c)))
+		widest = max(widest, min(textWidth(c, legendSize), legendRightMax))
 	}
 	legend := slices.Clone(res.Categories)
 	slices.Reverse(legend)
 	grid := predictionGrid
-	grid.Right = strconv.Itoa(40 + 7*widest)
-	l.SetGlobalOptions(append(baseOpts(id, title, sub, 420, grid),
-		charts.WithXAxisOpts(gridAxis(pf.focus)),
-		charts.WithYAxisOpts(opts.YAxis{Name: "cumulative probability", Type: "value", Min: 0, Max: 1}),
+	grid.Left = "40" // room for the y axis's name, turned beside the axis (a long one over the axis would meet the subtitle)
+	right := 40 + int(math.Ceil(widest))
+	grid.Right = strconv.Itoa(right)
+	fr := &chartFrame{id: d.chartID(), title: title, subtitle: sub, height: 420, grid: grid, legend: legend, legendRight: true}
+	axis, step := gridAxis(pf.focus, gridLabels(xs), float64(chartTextWidth-40-right))
+	fr.xStep = step
+	l.SetGlobalOptions(append(fr.opts(),
+		charts.WithXAxisOpts(axis),
+		charts.WithYAxisOpts(opts.YAxis{Name: "cumulative probability", Type: "value", Min: 0, Max: 1, NameLocation: "middle", NameGap: 32}),
 		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Orient: "vertical", Right: "0", Top: "middle",
 			Data: legend}))...)
 	l.SetXAxis(gridLabels(xs))
@@ -275,14 +283,33 @@ func cumulativeChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 		fig.series = append(fig.series, figSeries{name: lv, color: col, xs: xs, lo: append([]float64(nil), bottom...), hi: top, alpha: 0.85, legend: true})
 		bottom = top
 	}
-	return newChart(id, 420, caption, l).with(fig), nil
+	return newChart(fr, caption, l).with(fig), nil
 }
 
 // gridAxis is the x axis of the charts over the focus grid: a category
-// axis (so that the library stacks the bands point by point), whose
-// labels the library thins out to fit.
-func gridAxis(name string) opts.XAxis {
-	return opts.XAxis{Name: name, Type: "category", NameLocation: "middle", NameGap: 28}
+// axis (so that the library stacks the bands point by point) labelled at
+// evenly spaced points, first and last included, as many as keep apart
+// on an axis plotWidth pixels wide: every step-th (see chartFrame.xStep).
+func gridAxis(name string, labels []string, plotWidth float64) (axis opts.XAxis, step int) {
+	widest := 0.0
+	for _, l := range labels {
+		widest = max(widest, textWidth(l, 12))
+	}
+	n := len(labels) - 1
+	step = max(n, 1)
+	for k := 1; k < n; k++ {
+		if n%k == 0 && plotWidth/float64(n)*float64(k) >= widest+10 {
+			step = k
+			break
+		}
+	}
+	return opts.XAxis{Name: axisName(name), Type: "category", NameLocation: "middle", NameGap: 28}, step
+}
+
+// axisName is the name of an x axis, shortened with an ellipsis to the
+// chart's width (the caption gives it whole).
+func axisName(name string) string {
+	return fitWidth(name, chartTextWidth-40, widthAt(12))
 }
 
 // gridLabels writes the focus values with three significant digits.

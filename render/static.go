@@ -21,8 +21,9 @@ import (
 // one beside its interactive option.
 type figure struct {
 	title, xLabel, yLabel string
-	xNames                []string // a category axis (x = 0, 1, ...); nil: a numeric axis
-	yMin, yMax            float64  // NaN: from the data
+	xNames                []string  // a category axis (x = 0, 1, ...); nil: a numeric axis
+	xNameMax              vg.Length // the most an x name may take (0: figTickMax)
+	yMin, yMax            float64   // NaN: from the data
 	series                []figSeries
 	// legendUp lists the legend from the last series to the first, as
 	// the layers of a stacked chart are seen from top to bottom.
@@ -60,7 +61,23 @@ const (
 	figWidth  = 16 * vg.Centimeter
 	figHeight = 10 * vg.Centimeter
 	legendGap = 8 // points between the data area and the legend
+	// The most a tick label of a category axis and a legend entry may
+	// take before an ellipsis shortens them.
+	figTickMax   = 4 * vg.Centimeter
+	figLegendMax = 5 * vg.Centimeter
 )
+
+func (f *figure) tickMax() vg.Length {
+	if f.xNameMax > 0 {
+		return f.xNameMax
+	}
+	return figTickMax
+}
+
+// measured is a font's measure of texts as the layout functions take it.
+func measured(width func(string) vg.Length) func(string) float64 {
+	return func(s string) float64 { return float64(width(s)) }
+}
 
 // figLayout is where a drawn figure put its parts, in the image's
 // coordinates (points from the lower left corner).
@@ -136,7 +153,7 @@ func (f *figure) tickOverhang(p *plot.Plot, c draw.Canvas) vg.Length {
 	}
 	// The label's box turned by the rotation, with a tenth more width for
 	// viewers whose font runs wider than the one measured here.
-	size := p.X.Tick.Label.Rectangle(f.xNames[0]).Size()
+	size := p.X.Tick.Label.Rectangle(fitWidth(f.xNames[0], float64(f.tickMax()), measured(p.X.Tick.Label.Width))).Size()
 	th := p.X.Tick.Label.Rotation
 	reach := 1.1*size.X*vg.Length(math.Cos(th)) + size.Y*vg.Length(math.Sin(th)) + legendGap
 	data := p.DataCanvas(c)
@@ -147,9 +164,12 @@ func (f *figure) tickOverhang(p *plot.Plot, c draw.Canvas) vg.Length {
 // plot builds the figure's plot and, separately, its legend.
 func (f *figure) plot() (*plot.Plot, *plot.Legend, error) {
 	p := plot.New()
-	p.Title.Text = f.title
-	p.X.Label.Text = f.xLabel
-	p.Y.Label.Text = f.yLabel
+	// Long names are wrapped (the title) or shortened with an ellipsis
+	// (the rest) to the figure's width; the caption and the tables give
+	// them whole.
+	p.Title.Text = strings.Join(wrap(f.title, float64(figWidth-legendGap), titleLines, measured(p.Title.TextStyle.Width)), "\n")
+	p.X.Label.Text = fitWidth(f.xLabel, float64(figWidth*0.8), measured(p.X.Label.TextStyle.Width))
+	p.Y.Label.Text = fitWidth(f.yLabel, float64(figHeight*0.7), measured(p.Y.Label.TextStyle.Width))
 	leg := plot.NewLegend()
 	leg.Top, leg.Left = true, true
 	leg.Padding = vg.Points(2)
@@ -162,7 +182,7 @@ func (f *figure) plot() (*plot.Plot, *plot.Legend, error) {
 	if f.xNames != nil {
 		var ticks []plot.Tick
 		for i, n := range f.xNames {
-			ticks = append(ticks, plot.Tick{Value: float64(i), Label: n})
+			ticks = append(ticks, plot.Tick{Value: float64(i), Label: fitWidth(n, float64(f.tickMax()), measured(p.X.Tick.Label.Width))})
 		}
 		p.X.Tick.Marker = plot.ConstantTicks(ticks)
 		p.X.Min, p.X.Max = -0.5, float64(len(f.xNames))-0.5
@@ -280,7 +300,7 @@ func (f *figure) plot() (*plot.Plot, *plot.Legend, error) {
 		slices.Reverse(entries)
 	}
 	for _, e := range entries {
-		leg.Add(e.name, e.thumbs...)
+		leg.Add(fitWidth(e.name, float64(figLegendMax), measured(leg.TextStyle.Width)), e.thumbs...)
 	}
 	return p, &leg, nil
 }

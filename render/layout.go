@@ -1,0 +1,285 @@
+package render
+
+import (
+	"math"
+	"strconv"
+	"strings"
+	"unicode"
+	"unicode/utf8"
+
+	"github.com/go-echarts/go-echarts/v2/charts"
+	"github.com/go-echarts/go-echarts/v2/opts"
+)
+
+// Text in the charts: the interactive charts of report.html cannot measure
+// their text before the page draws them, so their layout (margins, label
+// angles, lines of a title) is computed from an estimate of each text's
+// width at the narrowest width a chart takes on the page; the static
+// figures measure their font. Long names are wrapped or shortened with an
+// ellipsis; the full name stays in the tooltip, the caption or the table.
+
+// chartTextWidth is the width, in pixels, that a chart's title, subtitle
+// and legend may take: a chart of report.html is at least 480 pixels wide
+// (the chart-figure style) less its padding.
+const chartTextWidth = 440
+
+// ellipsis ends a shortened text.
+const ellipsis = "…"
+
+// textWidth estimates the width in pixels of s in a sans-serif font of
+// size px: generous for capitals and wide letters, so that a text it
+// says fits does fit.
+func textWidth(s string, px float64) float64 {
+	w := 0.0
+	for _, r := range s {
+		switch {
+		case unicode.Is(unicode.Han, r) || unicode.Is(unicode.Hangul, r) || unicode.Is(unicode.Hiragana, r) || unicode.Is(unicode.Katakana, r):
+			w += 1
+		case strings.ContainsRune("mwMW@%", r):
+			w += 0.9
+		case unicode.IsUpper(r):
+			w += 0.68
+		case strings.ContainsRune("ijlftr.,:;|!' ()[]/", r):
+			w += 0.3
+		default: // digits, the underscore, most lower-case letters
+			w += 0.53
+		}
+	}
+	return w * px
+}
+
+// widthAt is textWidth at one font size, as a measure of texts.
+func widthAt(px float64) func(string) float64 {
+	return func(s string) float64 { return textWidth(s, px) }
+}
+
+// fitWidth shortens s at its end, with an ellipsis, to at most w wide by
+// measure m; a text that fits is returned as it is.
+func fitWidth(s string, w float64, m func(string) float64) string {
+	if m(s) <= w {
+		return s
+	}
+	rs := []rune(s)
+	for n := len(rs) - 1; n > 0; n-- {
+		t := strings.TrimRight(string(rs[:n]), " _-/&.,") + ellipsis
+		if m(t) <= w {
+			return t
+		}
+	}
+	return ellipsis
+}
+
+// breakAfter ranks the characters a line may break after: a space or an
+// ampersand first, then a slash, a full stop or a comma, then an
+// underscore or a hyphen (0: no break).
+func breakAfter(r rune) int {
+	switch r {
+	case ' ', '&':
+		return 3
+	case '/', '.', ',', ';':
+		return 2
+	case '_', '-':
+		return 1
+	}
+	return 0
+}
+
+// wrap breaks s into at most n lines, each at most w wide by measure m,
+// after the best-ranked break that leaves the line at least half full;
+// what does not fit in n lines is clipped on the last. Lines lose the
+// spaces they break at.
+func wrap(s string, w float64, n int, m func(string) float64) []string {
+	var lines []string
+	rest := strings.TrimSpace(s)
+	for len(lines) < n-1 && m(rest) > w {
+		cut, rank := -1, 0
+		for i, r := range rest {
+			end := i + utf8.RuneLen(r)
+			if m(strings.TrimSpace(rest[:end])) > w {
+				break
+			}
+			k := breakAfter(r)
+			if k == 0 || end == len(rest) {
+				continue
+			}
+			if m(rest[:end]) < w/3 {
+				k = min(k, 1) // a break this early only if nothing better comes
+			}
+			if k >= rank {
+				cut, rank = end, k
+			}
+		}
+		if cut < 0 {
+			break // no break fits: clip the rest
+		}
+		lines = append(lines, strings.TrimSpace(rest[:cut]))
+		rest = strings.TrimSpace(rest[cut:])
+	}
+	return append(lines, fitWidth(rest, w, m))
+}
+
+// Title and subtitle of the interactive charts, and the room they take.
+const (
+	titleSize      = 14
+	titleLine      = 18 // pixels per line of the title
+	subtitleSize   = 12
+	subtitleLine   = 15
+	titleLines     = 2 // at most
+	subtitleLines  = 2
+	legendSize     = 12
+	legendRow      = 22          // pixels per row of a legend at the bottom
+	legendTextMax  = 150         // pixels an entry of a legend at the bottom may take
+	legendRightMax = 120         // pixels an entry of a legend beside the plot may take
+	legendIconRoom = 25 + 5 + 10 // the icon, its gap to the text, the gap to the next entry
+)
+
+// chartTitle wraps a chart's title and subtitle to the chart's text
+// width; extra is how many pixels more than one line each they take.
+func chartTitle(title, subtitle string) (t, s string, extra int) {
+	tl := wrap(title, chartTextWidth, titleLines, widthAt(1.12*titleSize)) // bold
+	extra = (len(tl) - 1) * titleLine
+	if subtitle != "" {
+		sl := wrap(subtitle, chartTextWidth, subtitleLines, widthAt(subtitleSize))
+		extra += (len(sl) - 1) * subtitleLine
+		s = strings.Join(sl, "\n")
+	}
+	if extra > 0 {
+		extra += 12 // long lines reach over the y axis's name: move it down clear of them
+	}
+	return strings.Join(tl, "\n"), s, extra
+}
+
+// legendRows is how many rows a legend at the bottom of a chart takes for
+// these entries (each shown at most legendTextMax wide).
+func legendRows(names []string) int {
+	rows, x := 1, 0.0
+	seen := map[string]bool{}
+	for _, n := range names {
+		if seen[n] {
+			continue
+		}
+		seen[n] = true
+		w := min(textWidth(n, legendSize), legendTextMax) + legendIconRoom
+		if x > 0 && x+w > chartTextWidth {
+			rows++
+			x = 0
+		}
+		x += w
+	}
+	return rows
+}
+
+// categoryLabels is the layout of the labels of a category axis: upright
+// when every label fits its share of the axis, else turned and shortened
+// to at most maxWidth (the tooltip still gives the whole name), with
+// every label shown while they keep apart and the library thinning them
+// out beyond that.
+type categoryLabels struct {
+	rotate   float64 // degrees
+	width    float64 // pixels a label may take (0: all of it)
+	interval string  // "0": every label; "": the library's choice
+	extent   float64 // pixels from the axis line to the labels' far edge
+	overhang float64 // pixels the first label reaches left of its tick
+}
+
+func layoutCategories(names []string, size, axisWidth, maxWidth float64) categoryLabels {
+	widest := 0.0
+	for _, n := range names {
+		widest = max(widest, textWidth(n, size))
+	}
+	slot := axisWidth / float64(max(len(names), 1))
+	lineH := 1.3 * size
+	if widest <= slot-2 {
+		return categoryLabels{interval: "0", extent: lineH + 8, overhang: textWidth(names[0], size) / 2}
+	}
+	const deg = 30.0
+	th := deg * math.Pi / 180
+	w := min(widest, maxWidth)
+	first := min(textWidth(names[0], size), maxWidth)
+	l := categoryLabels{rotate: deg, width: maxWidth, interval: "0",
+		extent:   8 + w*math.Sin(th) + lineH*math.Cos(th),
+		overhang: first*math.Cos(th) + lineH*math.Sin(th)/2}
+	if slot*math.Sin(th) < lineH+2 {
+		l.interval = ""
+	}
+	if widest <= maxWidth {
+		l.width = 0
+	}
+	return l
+}
+
+// axisLabel is the library's option for these labels.
+func (l categoryLabels) axisLabel(size int) *opts.AxisLabel {
+	a := &opts.AxisLabel{Rotate: l.rotate, Interval: l.interval, FontSize: size}
+	if l.width > 0 {
+		a.Width = int(l.width)
+		a.Overflow = "truncate"
+		a.Ellipsis = ellipsis
+	}
+	return a
+}
+
+// fitting is the chart visitor that adds what go-echarts has no field
+// for: a legend whose entries longer than width pixels are shortened with
+// an ellipsis and shown whole in a tooltip.
+type fitting struct {
+	charts.BaseConfigurationVisitor
+	width int
+	step  int
+}
+
+// steppedAxis is an x axis labelled at every step-th category: the
+// library wants the interval as a number, which go-echarts writes as a
+// string.
+type steppedAxis struct {
+	opts.XAxis
+	AxisLabel interval `json:"axisLabel"`
+	AxisTick  interval `json:"axisTick"`
+}
+
+type interval struct {
+	Interval int `json:"interval"`
+}
+
+func (f fitting) VisitXAxis(axes []opts.XAxis) any {
+	if f.step <= 1 {
+		return axes
+	}
+	out := make([]steppedAxis, len(axes))
+	for i, a := range axes {
+		out[i] = steppedAxis{XAxis: a, AxisLabel: interval{f.step - 1}, AxisTick: interval{f.step - 1}}
+	}
+	return out
+}
+
+type legendText struct {
+	FontSize int    `json:"fontSize"`
+	Width    int    `json:"width"`
+	Overflow string `json:"overflow"`
+	Ellipsis string `json:"ellipsis"`
+}
+
+type fittedLegend struct {
+	opts.Legend
+	TextStyle *legendText   `json:"textStyle"`
+	Tooltip   *opts.Tooltip `json:"tooltip"`
+}
+
+func (f fitting) VisitLegendOpt(l opts.Legend) any {
+	return fittedLegend{Legend: l,
+		TextStyle: &legendText{FontSize: legendSize, Width: f.width, Overflow: "truncate", Ellipsis: ellipsis},
+		Tooltip:   &opts.Tooltip{Show: opts.Bool(true)}}
+}
+
+// upright is the extent of upright labels of this size.
+func (categoryLabels) upright(size float64) float64 { return 1.3*size + 8 }
+
+// leftFor is the left margin of a plot whose x axis has these labels:
+// def unless turned labels reach further left than the y axis's labels
+// (taken as 20 pixels wide) leave room for.
+func leftFor(l categoryLabels, def string) string {
+	if l.rotate == 0 {
+		return def
+	}
+	return strconv.Itoa(max(30, int(math.Ceil(l.overhang))-20))
+}
