@@ -152,6 +152,9 @@ func writePairsAtPoints(d *doc, r *runner.Result, or *runner.OutcomeResult, set 
 		if me.Kind == "means" && r.Analysis != nil && r.Analysis.Errors.Sampling {
 			d.p("%s", samplingMeansNote)
 		}
+		if me.Kind == "profile" {
+			profileOutsideNote(d, or, "differences")
+		}
 		if k == 0 {
 			d.p("A difference at one point compares two groups that share that one covariate profile, in the fitted association: it describes units like that point, not the rows used on average (the average differences above can differ from it in size, even in sign), and it does not say what moving a unit from one level to the other would change.")
 		}

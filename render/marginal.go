@@ -45,6 +45,7 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		case "profile":
 			d.h(3, "Marginal effects at the plan's profile")
 			d.p("The effects at the point %s (predictors the plan's profile does not set are at their means, categorical ones at their reference level; a 0/1 predictor is changed from 0 to 1, any other numeric predictor differentiated, at that point). Standard errors by the delta method; intervals at %s, symmetric about the effect (the effect plus and minus a quantile times its standard error, since an effect, a change of a probability, can be negative).%s", pointList(or, set.Point), pct(level), categorical)
+			profileOutsideNote(d, or, "effects")
 		}
 		if set.Error != "" {
 			d.p("Not computed: %s.", set.Error)
@@ -149,4 +150,16 @@ func pooledPoint(set runner.MarginalSet) string {
 		return ""
 	}
 	return " The point shown is the mean of the sets' points: each set's effects are at that set's own means."
+}
+
+// profileOutsideNote warns, beside the tables at the plan's profile,
+// that the profile lies outside the population the model was fitted to
+// (runner.OutcomeResult.ProfileOutside, the reasons new rows get); what
+// names what the table holds. Nothing when it lies inside.
+func profileOutsideNote(d *doc, or *runner.OutcomeResult, what string) {
+	if len(or.ProfileOutside) == 0 {
+		return
+	}
+	d.p("**Outside the population fitted:** the plan's profile lies outside the population the model was fitted to: %s. The %s at it rest there on the model's form alone, and their intervals do not show that; read them with care.",
+		mdText(strings.Join(or.ProfileOutside, "; ")), what)
 }

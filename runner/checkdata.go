@@ -39,6 +39,9 @@ func CheckData(p *plan.Plan) ([]string, error) {
 		if w := a.SingularModels(r, ld.Data, gridModels(a, terms), len(ld.Data.Categories), allColumns(terms)); w != "" {
 			warnings = append(warnings, fmt.Sprintf("outcome %s: %s", r.Outcome, w))
 		}
+		if w := ProfileOutsideWarning(r.Outcome, profileOutside(a, newSourceRanges(ld.Design, ld.Data), r.Options.Keep)); w != "" {
+			warnings = append(warnings, w)
+		}
 		scopes = append(scopes, hypothesisScope(p.Outcomes[i].Column, ld.Design, ld.Data.Categories))
 		// The new rows to predict: read through the design as run reads
 		// them after the fits (an undeclared level, a value a
@@ -78,6 +81,9 @@ func FewClustersWarnings(res *Result) []string {
 		}
 		if w := an.SingularModels(an.Outcomes[i], or.Data, or.Fits, len(or.Data.Categories), allColumns(or.Terms)); w != "" {
 			out = append(out, fmt.Sprintf("outcome %s: %s", an.Outcomes[i].Outcome, w))
+		}
+		if w := ProfileOutsideWarning(an.Outcomes[i].Outcome, or.ProfileOutside); w != "" {
+			out = append(out, w)
 		}
 	}
 	return out

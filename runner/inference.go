@@ -144,6 +144,7 @@ func runInference(an *Analysis, or *OutcomeResult) error {
 	if or.Chosen == nil {
 		return nil
 	}
+	or.ProfileOutside = profileOutside(an, or.fittedRanges(), or.dataOptions.Keep)
 	res := or.Chosen.Result
 	for _, kind := range inf.MarginalEffects {
 		or.Marginal = append(or.Marginal, marginalSet(an, or, res, kind))

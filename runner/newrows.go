@@ -65,40 +65,19 @@ func flagNewRows(an *Analysis, or *OutcomeResult, nr *NewRows) {
 	S := len(dz.Sources)
 	fitted := or.fittedRanges()
 	col := func(name string) int { return slices.Index(rows.Header, name) }
-	num := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
 	for i := 0; i < rows.N; i++ {
 		var why []string
 		for _, k := range rows.Fails[i] {
 			c := keep[k]
-			cell := rows.Cells[i][col(c.Column)]
-			if c.Op == "in" || c.Op == "not_in" {
-				cell = strconv.Quote(cell)
-			}
-			why = append(why, fmt.Sprintf("%s: fails the plan's subset condition %s (%s is %s)", c.Key, c.String(), c.Column, cell))
+			why = append(why, subsetFailure(c, rows.Cells[i][col(c.Column)]))
 		}
 		for _, k := range rows.Undecided[i] {
 			c := keep[k]
 			why = append(why, fmt.Sprintf("%s: cannot be checked against the plan's subset condition %s (%s is missing)", c.Key, c.String(), c.Column))
 		}
 		for s, src := range dz.Sources {
-			if src.Cat != nil {
-				continue
-			}
-			v := rows.X[i*S+s]
-			if b := an.Declared[src.Name]; b != nil {
-				switch {
-				case b.Range != nil && (v < b.Range[0] || v > b.Range[1]):
-					why = append(why, fmt.Sprintf("%s: %s %s is outside the declared range [%s, %s]", b.Key, src.Name, num(v), num(b.Range[0]), num(b.Range[1])))
-				case b.Values != nil && !slices.Contains(b.Values, v):
-					vals := make([]string, len(b.Values))
-					for j, x := range b.Values {
-						vals[j] = num(x)
-					}
-					why = append(why, fmt.Sprintf("%s: %s %s is not one of the declared values %s", b.Key, src.Name, num(v), strings.Join(vals, ", ")))
-				}
-			}
-			if w := fitted.extrapolation(s, v); w != "" {
-				why = append(why, w)
+			if src.Cat == nil {
+				why = append(why, numberOutside(an, fitted, s, rows.X[i*S+s])...)
 			}
 		}
 		nr.Outside = append(nr.Outside, why)
@@ -106,6 +85,83 @@ func flagNewRows(an *Analysis, or *OutcomeResult, nr *NewRows) {
 			nr.Flagged = append(nr.Flagged, NewRowOutside{Line: rows.Lines[i], Reasons: why})
 		}
 	}
+}
+
+// subsetFailure is the reason of a value (cell, its text) that fails
+// the plan's subset condition c.
+func subsetFailure(c data.Condition, cell string) string {
+	if c.Op == "in" || c.Op == "not_in" {
+		cell = strconv.Quote(cell)
+	}
+	return fmt.Sprintf("%s: fails the plan's subset condition %s (%s is %s)", c.Key, c.String(), c.Column, cell)
+}
+
+// numberOutside gives the reasons why the value v of numeric source s
+// lies outside the population fitted: outside the range or values the
+// data dictionary declares, beyond the range of the rows fitted
+// (extrapolation). New rows (flagNewRows) and the plan's profile
+// (profileOutside) are judged by it.
+func numberOutside(an *Analysis, fitted *sourceRanges, s int, v float64) []string {
+	var why []string
+	name := fitted.dz.Sources[s].Name
+	num := func(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
+	if b := an.Declared[name]; b != nil {
+		switch {
+		case b.Range != nil && (v < b.Range[0] || v > b.Range[1]):
+			why = append(why, fmt.Sprintf("%s: %s %s is outside the declared range [%s, %s]", b.Key, name, num(v), num(b.Range[0]), num(b.Range[1])))
+		case b.Values != nil && !slices.Contains(b.Values, v):
+			vals := make([]string, len(b.Values))
+			for j, x := range b.Values {
+				vals[j] = num(x)
+			}
+			why = append(why, fmt.Sprintf("%s: %s %s is not one of the declared values %s", b.Key, name, num(v), strings.Join(vals, ", ")))
+		}
+	}
+	if w := fitted.extrapolation(s, v); w != "" {
+		why = append(why, w)
+	}
+	return why
+}
+
+// profileOutside says why the plan's profile lies outside the population
+// the model was fitted to, judging each value it sets as flagNewRows
+// judges a new row's: a subset condition on that column it fails
+// (keep, the data's conditions), a number outside the dictionary's
+// declaration or beyond the range of the rows fitted (numberOutside, on
+// fitted). The columns the profile does not set are at their means or
+// reference levels, inside by construction. nil: inside, or no profile.
+func profileOutside(an *Analysis, fitted *sourceRanges, keep []data.Condition) []string {
+	dz := fitted.dz
+	var why []string
+	for _, a := range an.Inference.Profile {
+		s := dz.Source(a.Predictor)
+		if s < 0 {
+			continue
+		}
+		cell := a.Level
+		if dz.Sources[s].Cat == nil {
+			cell = strconv.FormatFloat(a.Value, 'g', -1, 64)
+		}
+		for _, c := range keep {
+			if c.Column == a.Predictor && !c.Keeps(cell) {
+				why = append(why, subsetFailure(c, cell))
+			}
+		}
+		if dz.Sources[s].Cat == nil {
+			why = append(why, numberOutside(an, fitted, s, a.Value)...)
+		}
+	}
+	return why
+}
+
+// ProfileOutsideWarning is the warning of check and run when the plan's
+// profile lies outside the population fitted (why: profileOutside's
+// reasons); "" when it does not.
+func ProfileOutsideWarning(outcome string, why []string) string {
+	if len(why) == 0 {
+		return ""
+	}
+	return fmt.Sprintf("outcome %s: inference.profile lies outside the population the model is fitted to (%s): the marginal effects and pairs of levels at the profile rest there on the model's form alone, and their intervals do not show it", outcome, strings.Join(why, "; "))
 }
 
 // sourceRanges is the range of each numeric source of a design over the

@@ -82,6 +82,7 @@ func runPooledInference(an *Analysis, or *OutcomeResult) error {
 	if or.Chosen == nil {
 		return nil
 	}
+	or.ProfileOutside = profileOutside(an, or.fittedRanges(), or.dataOptions.Keep)
 	inf := an.Inference
 	fits, ferr := or.chosenPerSet()
 	var dfc float64

@@ -97,6 +97,11 @@ type OutcomeDecisions struct {
 	// missing value, every one, with the columns each misses; absent
 	// when none.
 	NewRowsSkipped []NewRowSkipped `json:"new_rows_skipped,omitempty"`
+	// ProfileOutside: why the plan's profile (inference.profile) lies
+	// outside the population the chosen model was fitted to, each reason
+	// led by its plan key or the word extrapolation, as new rows' are;
+	// absent when inside.
+	ProfileOutside []string `json:"profile_outside,omitempty"`
 	// NewRowsNotPredicted: the new rows that are not predicted because a
 	// term cannot be computed for them (the log of 0, say), with the
 	// reason; absent when none.
@@ -303,6 +308,7 @@ func BuildDecisions(r *Result) *Decisions {
 		}
 		od.Marginal = or.Marginal
 		od.LevelPairs = or.LevelPairs
+		od.ProfileOutside = or.ProfileOutside
 		if or.NewRows != nil {
 			od.NewRowsOutside = or.NewRows.Flagged
 			od.NewRowsSkipped = SkippedNewRows(or.NewRows.Rows)

@@ -79,7 +79,11 @@ type OutcomeResult struct {
 	dataOptions data.Options   // how Data was read (rules read further columns the same way)
 	Marginal    []MarginalSet  // marginal effects of the chosen model
 	LevelPairs  []LevelPairSet // pairs of levels of categorical predictors (inference.level_pairs)
-	NewRows     *NewRows       // predictions for the plan's new rows
+	// ProfileOutside says why the plan's profile lies outside the
+	// population the model was fitted to (nil: inside, or no profile;
+	// profileOutside).
+	ProfileOutside []string
+	NewRows        *NewRows // predictions for the plan's new rows
 
 	// Imputed is set when the outcome was analysed on multiply imputed
 	// data: Data is then imputed set 1 with the original file's table of

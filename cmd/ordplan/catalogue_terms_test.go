@@ -326,6 +326,34 @@ func termItems(dir string) []badInput {
 					t.Errorf("decisions.json does not list the row not predicted (%v)", err)
 				}
 			}},
+		{id: "W23", name: "a profile outside the population fitted: failing a subset condition, beyond the data (warned, flagged beside its tables)", args: []string{"run"}, setup: writeTermsData,
+			plan: termsEdit("predictors:", "subset:\n  - {column: x, at_least: 0}\npredictors:", "rules:", "inference: {marginal_effects: [profile], profile: {x: -0.25}, level_pairs: {predictors: [site]}}\nrules:"), code: 0,
+			want: []string{"y: chosen: cumulative/parallel/logit"},
+			check: func(t *testing.T, dir, out, errs string) {
+				plan := filepath.Join(dir, "W23.yaml")
+				why := `subset[0]: fails the plan's subset condition x >= 0 (x is -0.25); extrapolation: x -0.25 is beyond the range of the rows the model was fitted to, 0.507 to 3.5`
+				want := "warning: " + plan + `: outcome y: inference.profile lies outside the population the model is fitted to (` + why + `): the marginal effects and pairs of levels at the profile rest there on the model's form alone, and their intervals do not show it` + "\n"
+				if !strings.Contains(errs, want) {
+					t.Errorf("run: want the warning %q in\n%s", want, errs)
+				}
+				if _, e, code := runCLI("check", plan); code != 0 || !strings.Contains(e, want) {
+					t.Errorf("check: exit %d, want the warning %q in\n%s", code, want, e)
+				}
+				if _, e, code := runCLI("check", "--no-data", plan); code != 0 || strings.Contains(e, "inference.profile lies outside") {
+					t.Errorf("check --no-data: exit %d, a warning it cannot make without the data:\n%s", code, e)
+				}
+				rep, err := os.ReadFile(filepath.Join(dir, "W23-out", "report.md"))
+				note := "**Outside the population fitted:** the plan's profile lies outside the population the model was fitted to: " + strings.ReplaceAll(why, "]", `\]`) + ". The %s at it rest there on the model's form alone"
+				for _, w := range []string{fmt.Sprintf(note, "effects"), fmt.Sprintf(note, "differences")} {
+					if err != nil || !strings.Contains(string(rep), w) {
+						t.Errorf("report.md (%v): want %q", err, w)
+					}
+				}
+				dec, err := os.ReadFile(filepath.Join(dir, "W23-out", "decisions.json"))
+				if w := `"profile_outside": [`; err != nil || !strings.Contains(string(dec), w) {
+					t.Errorf("decisions.json (%v): want %s", err, w)
+				}
+			}},
 		{id: "T26", name: "pairs of levels at a profile that gives no level of another categorical predictor (warned, held at its reference level)", args: []string{"run"}, setup: writeCellsData,
 			plan: termsEdit("cat.csv", "cells.csv", "south]}\n", "south]}\n  grade: {levels: [lo, hi]}\n", "[site, x]", "[site, grade, x]", "rules:", "inference: {marginal_effects: [profile], profile: {x: 3}, level_pairs: {predictors: [site]}}\nrules:"), code: 0,
 			want: []string{"y: chosen: cumulative/parallel/logit"},
