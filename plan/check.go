@@ -135,22 +135,9 @@ func (d *decoder) checkDataOptions(p *Plan) {
 	if p.Data.Cluster != "" && p.Covariance != fit.Clustered && d.clean("covariance") {
 		d.errAt("data.cluster", "the cluster column is used only with covariance: clustered (covariance is %s); set covariance: clustered or remove data.cluster", quote(p.Covariance.String()))
 	}
-	if p.FewClusters != fit.NoCorrection && d.clean("covariance") {
-		switch {
-		case p.Covariance != fit.Clustered:
-			d.errAt("few_clusters", "%s corrects clustered errors, but covariance is %s: set covariance: clustered with data.cluster naming the cluster column, or remove few_clusters", p.FewClusters, quote(p.Covariance.String()))
-		case p.Data.Imputed != nil || p.Data.Imputes():
-			d.errAt("few_clusters", "%s is not available with imputed data (%s): Rubin's rules would need the jackknife's G-1 degrees of freedom carried into the pooling, which the program does not do; remove few_clusters (the clustered errors are then not corrected for few clusters) or analyse complete data", p.FewClusters, imputedKey(p))
-		}
+	if p.FewClusters != fit.NoCorrection && p.Covariance != fit.Clustered && d.clean("covariance") {
+		d.errAt("few_clusters", "%s corrects clustered errors, but covariance is %s: set covariance: clustered with data.cluster naming the cluster column, or remove few_clusters", p.FewClusters, quote(p.Covariance.String()))
 	}
-}
-
-// imputedKey names the plan key that makes the data imputed.
-func imputedKey(p *Plan) string {
-	if p.Data.Imputed != nil {
-		return "data.imputed"
-	}
-	return "data.missing: impute"
 }
 
 // sourceKey gives the key of the first term that reads column col.

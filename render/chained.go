@@ -77,10 +77,16 @@ func clusterCaution(cluster string) string {
 }
 
 // imputationMethods is the methods paragraph's sentence on imputed data:
-// how the sets were made (by this run or elsewhere) and pooled.
-func imputationMethods(im *runner.ImputedRun, dz *design.Design, cluster string, c *citer) string {
+// how the sets were made (by this run or elsewhere) and pooled, with the
+// complete-data degrees of freedom of the pooling (g: the clusters of a
+// cluster-robust covariance, 0 for none; completeDFText).
+func imputationMethods(im *runner.ImputedRun, dz *design.Design, cluster string, g int, c *citer) string {
 	pool := func() string {
-		return fmt.Sprintf("Every model was fitted on each of the %d imputed data sets and the results were combined by Rubin's rules %s.", im.M, c.cite("rubin"))
+		joint := ""
+		if g > 0 {
+			joint = "; a pooled Wald test of q restrictions was multiplied by (G-q)/(G-1) and referred to F with the small-sample denominator for G-q complete-data degrees of freedom"
+		}
+		return fmt.Sprintf("Every model was fitted on each of the %d imputed data sets and the results were combined by Rubin's rules %s, %s%s.", im.M, c.cite("rubin"), completeDFText(g, cluster), joint)
 	}
 	ch := im.Chained
 	if ch == nil {

@@ -290,5 +290,9 @@ func pooledClusterDF(r *fit.Result) string {
 	if r == nil || r.DF == nil || r.RefDF <= 0 {
 		return ""
 	}
-	return fmt.Sprintf(" for complete-data degrees of freedom G-1 = %s (the cluster-robust covariance from G = %d clusters of each imputed set)", numfmt.Num(r.RefDF), r.Clusters)
+	cov := "cluster-robust covariance"
+	if r.Correction == fit.Jackknife {
+		cov = "delete-one-cluster jackknife covariance"
+	}
+	return fmt.Sprintf(" for complete-data degrees of freedom G-1 = %s (the %s from G = %d clusters of each imputed set)", numfmt.Num(r.RefDF), cov, r.Clusters)
 }
