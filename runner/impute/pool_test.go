@@ -417,3 +417,41 @@ func TestD3NegativeBetweenPart(t *testing.T) {
 		t.Errorf("a positive r warns: %q", d.Warnings)
 	}
 }
+
+// TestD1DF: D1's small-sample denominator (d1DF) is nu* = (nu+1)/(nu+3) nu
+// with no between-set variance, tends to the large-sample value as the
+// complete-data degrees of freedom grow, is the Barnard-Rubin degrees of
+// freedom with one restriction, and where its expression is not defined
+// (t = k(m-1) <= 4, or nu* not above 4(1+a)) the smaller of the
+// large-sample value and nu*. Values from the definitions (the check
+// against mitml is TestRubinAgainstMiceFrozen).
+func TestD1DF(t *testing.T) {
+	if got, want := d1DF(2, 5, 0, 21), 22.0/24*21; math.Abs(got-want) > 1e-12 {
+		t.Errorf("r = 0: %g, want nu* %g", got, want)
+	}
+	large := pooledTestDF(3, 10, 0.4)
+	if got := d1DF(3, 10, 0.4, 1e9); math.Abs(got/large-1) > 1e-3 {
+		t.Errorf("nu = 1e9: %g, large-sample %g", got, large)
+	}
+	if got := d1DF(3, 10, 0.4, 40); !(got < large && got < 40) {
+		t.Errorf("nu = 40: %g, not below the large-sample %g and nu", got, large)
+	}
+	if got, want := d1DF(1, 5, 0.25, 30), BarnardRubinDF(5, 0.2, 30); got != want {
+		t.Errorf("one restriction: %g, Barnard-Rubin %g", got, want)
+	}
+	// m = 3, k = 2: t = 4, undefined.
+	if got, want := d1DF(2, 3, 0.5, 20), math.Min(pooledTestDF(2, 3, 0.5), 21.0/23*20); got != want {
+		t.Errorf("t = 4: %g, want %g", got, want)
+	}
+	// nu = 5: nu* = 3.75, below 4(1+a).
+	if got, want := d1DF(2, 6, 0.3, 5), math.Min(pooledTestDF(2, 6, 0.3), 6.0/8*5); got != want {
+		t.Errorf("nu = 5: %g, want %g", got, want)
+	}
+	// Clustered: the factor (G-q)/(G-1) and G-q.
+	if s, df := (Complete{DF: 11, Clusters: 12}).Joint(3); math.Abs(s-9.0/11) > 1e-15 || df != 9 {
+		t.Errorf("Joint(3) of 12 clusters: %g, %g", s, df)
+	}
+	if s, df := (Complete{DF: 40}).Joint(3); s != 1 || df != 40 {
+		t.Errorf("Joint(3) model-based: %g, %g", s, df)
+	}
+}
