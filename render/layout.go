@@ -128,7 +128,7 @@ const (
 	subtitleLines  = 2
 	legendSize     = 12
 	legendRow      = 22          // pixels per row of a legend at the bottom
-	legendTextMax  = 150         // pixels an entry of a legend at the bottom may take
+	legendTextMax  = 200         // pixels an entry of a legend at the bottom may take
 	legendRightMax = 120         // pixels an entry of a legend beside the plot may take
 	legendIconRoom = 25 + 5 + 10 // the icon, its gap to the text, the gap to the next entry
 )
