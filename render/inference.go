@@ -116,8 +116,12 @@ func writeNewRows(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			neg++
 		}
 	}
-	d.p("The chosen model's predictions for the %d rows of `%s` (%d rows read, %s) are in `%s`: for each row its line in the file and the file's own columns (so a row label travels with its predictions), the category probabilities (`prob_CATEGORY`), the cumulative probabilities P(y <= m) (`cumprob_CATEGORY`), the expected category (`expected`, categories scored 1 to %d), the most likely category, the linear predictors (`linear_m`) and whether the row lies outside the population the model was fitted to (`outside`, with the reasons in `outside_why`), each number with its delta-method standard error (`se_...`) and its %s interval (`low_%s_...`, `high_%s_...`). The interval of a linear predictor is the number plus and minus %s standard errors. That of a probability is made on its log-odds scale, logit(p) plus and minus the same multiple of the error se/(p(1 − p)), and transformed back, so that it stays between 0 and 1 and is not symmetric about p near either end (empty for a negative probability); that of the expected category likewise on the log-odds scale of its place between 1 and %d. Rows with a negative predicted probability: %d.",
-		nr.Rows.N, nr.File, nr.Rows.RowsRead, skippedNewRows(nr.Rows), predictionsFile(or), len(or.Data.Categories), pct(level), lvText(level), lvText(level), times, len(or.Data.Categories), neg)
+	rowsOf := fmt.Sprintf("the %d rows", nr.Rows.N)
+	if n := len(nr.Unpredicted); n > 0 {
+		rowsOf = fmt.Sprintf("%d of the %d rows (%d not predicted, below)", nr.Rows.N-n, nr.Rows.N, n)
+	}
+	d.p("The chosen model's predictions for %s of `%s` (%d rows read, %s) are in `%s`: for each row its line in the file and the file's own columns (so a row label travels with its predictions), the category probabilities (`prob_CATEGORY`), the cumulative probabilities P(y <= m) (`cumprob_CATEGORY`), the expected category (`expected`, categories scored 1 to %d), the most likely category, the linear predictors (`linear_m`) and whether the row lies outside the population the model was fitted to (`outside`, with the reasons in `outside_why`), each number with its delta-method standard error (`se_...`) and its %s interval (`low_%s_...`, `high_%s_...`). The interval of a linear predictor is the number plus and minus %s standard errors. That of a probability is made on its log-odds scale, logit(p) plus and minus the same multiple of the error se/(p(1 − p)), and transformed back, so that it stays between 0 and 1 and is not symmetric about p near either end (empty for a negative probability); that of the expected category likewise on the log-odds scale of its place between 1 and %d. Rows with a negative predicted probability: %d.",
+		rowsOf, nr.File, nr.Rows.RowsRead, skippedNewRows(nr.Rows), predictionsFile(or), len(or.Data.Categories), pct(level), lvText(level), lvText(level), times, len(or.Data.Categories), neg)
 	if nr.DF != nil {
 		d.p("On imputed data each number was predicted on each of the %d imputed sets by that set's fit and pooled by Rubin's rules: the prediction is the mean over the sets, its standard error the square root of the mean squared delta-method error plus (1 + 1/%d) times the variance between the sets, and each standard error is followed by its Barnard-Rubin degrees of freedom (`df_...`, empty when the sets agree) ; the intervals use t on them. The most likely category is that of the pooled probabilities; a row is flagged negative when a pooled probability or any set's is.",
 			or.Imputed.M, or.Imputed.M)
@@ -187,8 +191,12 @@ func writeNewRowsOutside(d *doc, or *runner.OutcomeResult) {
 		d.p("Every row lies within the population the model was fitted to. %s", checked)
 		return
 	}
-	d.p("**Outside the population fitted:** %d of the %d rows lie outside the population the model was fitted to. They are predicted all the same, as asked, but a prediction for a row the plan's subset excludes, or beyond the values of the rows used (extrapolation), rests on the model's form alone, and its interval does not show that; read it with care. The columns `outside` and `outside_why` of `%s` flag them. %s",
-		len(nr.Flagged), nr.Rows.N, predictionsFile(or), checked)
+	predicted := "They are predicted all the same, as asked"
+	if len(nr.Unpredicted) > 0 {
+		predicted = "Those a term can be computed for are predicted all the same, as asked"
+	}
+	d.p("**Outside the population fitted:** %d of the %d rows lie outside the population the model was fitted to. %s, but a prediction for a row the plan's subset excludes, or beyond the values of the rows used (extrapolation), rests on the model's form alone, and its interval does not show that; read it with care. The columns `outside` and `outside_why` of `%s` flag them. %s",
+		len(nr.Flagged), nr.Rows.N, predicted, predictionsFile(or), checked)
 	var rows [][]string
 	for _, f := range nr.Flagged[:min(len(nr.Flagged), newRowsListed)] {
 		rows = append(rows, []string{strconv.Itoa(f.Line), strings.Join(f.Reasons, "; ")})
