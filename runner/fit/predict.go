@@ -3,6 +3,7 @@ package fit
 import (
 	"fmt"
 	"math"
+	"slices"
 )
 
 // Prediction holds, for new rows, the category probabilities, cumulative
@@ -35,31 +36,56 @@ func (pr *problem) rowProbs(c *coefs, x []float64, off float64, L, p []float64) 
 	pr.ker.probs(L, p)
 }
 
-// dprobsDL fills D (J x (J-1)) with dP_j/dL_m at L.
-func (k *kernel) dprobsDL(L []float64, D []float64) {
+// dprobsDL fills D (J x (J-1)) with dP_j/dL_m at L and, when T is not nil,
+// T (J x (J-1) x (J-1)) with the second derivatives d2P_j/dL_m dL_l. For a
+// cumulative model P_j = F(L_j) - F(L_j-1) (F(L_-1) = 0, F(L_J-1) = 1):
+// D holds the densities f and T their derivatives f' on its diagonals; for
+// the others P_j = exp(log P_j), so dP_j/dL_m = P_j g_m and d2P_j/dL_m dL_l =
+// P_j (h_ml + g_m g_l) with g and h the derivatives of log P_j (kernel.eval).
+func (k *kernel) dprobsDL(L, D, T []float64) {
 	q := k.nEq
 	J := q + 1
 	for i := range D[:J*q] {
 		D[i] = 0
 	}
+	if T != nil {
+		for i := range T[:J*q*q] {
+			T[i] = 0
+		}
+	}
 	if k.cmp == Cumulative {
 		for m := 0; m < q; m++ {
-			lf, _ := k.link.logDensity(L[m])
+			lf, r := k.link.logDensity(L[m])
 			f := math.Exp(lf)
 			D[m*q+m] += f
 			D[(m+1)*q+m] -= f
+			if T != nil {
+				fp := mulZero(f, r) // f' = f (f'/f); 0 where f is 0 in floating point
+				T[(m*q+m)*q+m] += fp
+				T[((m+1)*q+m)*q+m] -= fp
+			}
 		}
 		return
 	}
 	g := make([]float64, q)
+	var h []float64
+	if T != nil {
+		h = make([]float64, q*q)
+	}
 	for j := 0; j < J; j++ {
-		lp, ok := k.eval(L, j, g, nil)
+		lp, ok := k.eval(L, j, g, h)
 		if !ok {
 			continue
 		}
 		P := math.Exp(lp)
 		for m := 0; m < q; m++ {
 			D[j*q+m] = P * g[m]
+			if T == nil {
+				continue
+			}
+			for l := 0; l < q; l++ {
+				T[(j*q+m)*q+l] = mulZero(P, h[m*q+l]+g[m]*g[l])
+			}
 		}
 	}
 }
@@ -82,25 +108,13 @@ func (pr *problem) rowJacobian(theta []float64, x []float64, off float64) []floa
 func (pr *problem) rowJacobians(theta []float64, x []float64, off float64) ([]float64, []float64) {
 	q, P := pr.q, len(theta)
 	J := q + 1
-	L := pr.rowLinear(theta, x, off)
+	c := pr.coefs(theta)
+	L := make([]float64, q)
+	pr.linearRow(c, x, off, L)
 	D := make([]float64, J*q)
-	pr.ker.dprobsDL(L, D)
-	// dL_m/dtheta
+	pr.ker.dprobsDL(L, D, nil)
 	dL := make([]float64, q*P)
-	dv := pr.derivs(theta)
-	u := pr.rowColumns(theta, x)
-	for i, dd := range dv {
-		if dd.parallel {
-			xv := x[pr.parCols[dd.col]]
-			for m := 0; m < q; m++ {
-				dL[m*P+i] = -xv
-			}
-			continue
-		}
-		for _, e := range dd.c {
-			dL[e.m*P+i] += e.v * u[dd.col]
-		}
-	}
+	pr.linearJacobian(pr.derivs(theta), c, x, true, dL)
 	out := make([]float64, J*P)
 	for j := 0; j < J; j++ {
 		for m := 0; m < q; m++ {
@@ -113,6 +127,35 @@ func (pr *problem) rowJacobians(theta []float64, x []float64, off float64) ([]fl
 		}
 	}
 	return out, dL
+}
+
+// linearJacobian fills dL ((J-1) x P) with dL_m/dtheta at the predictor
+// values x, for the derivatives dv (problem.derivs) and coefficients c of
+// the same theta. Without cuts the cutpoints' column counts 0: L is affine
+// in x, so that is the Jacobian of L(x0 + x) - L(x0), the change of the
+// linear predictors along a direction x, whatever x0.
+func (pr *problem) linearJacobian(dv []pderiv, c *coefs, x []float64, cuts bool, dL []float64) {
+	P := len(dv)
+	for i := range dL {
+		dL[i] = 0
+	}
+	for i, dd := range dv {
+		if dd.parallel {
+			xv := x[pr.parCols[dd.col]]
+			for m := 0; m < pr.q; m++ {
+				dL[m*P+i] = -xv
+			}
+			continue
+		}
+		col := pr.freeCols[dd.col]
+		if col.kind == constantColumn && !cuts {
+			continue
+		}
+		u := col.value(x, pr.ly.groups, c.gam)
+		for _, e := range dd.c {
+			dL[e.m*P+i] += e.v * u
+		}
+	}
 }
 
 // rowColumns returns the per-equation columns of one row.
@@ -207,28 +250,6 @@ func (r *Result) Predict(X []float64, offset []float64) (*Prediction, error) {
 	return out, nil
 }
 
-// centralJacobian returns the Jacobian (len(f) x len(theta), row-major) of
-// f at theta by central differences with steps 1e-6 max(1, |theta_a|).
-func centralJacobian(f func([]float64) []float64, theta []float64) []float64 {
-	P := len(theta)
-	var jac []float64
-	for a := 0; a < P; a++ {
-		h := 1e-6 * math.Max(1, math.Abs(theta[a]))
-		tp := append([]float64(nil), theta...)
-		tm := append([]float64(nil), theta...)
-		tp[a] += h
-		tm[a] -= h
-		fp, fm := f(tp), f(tm)
-		if jac == nil {
-			jac = make([]float64, len(fp)*P)
-		}
-		for j := range fp {
-			jac[j*P+a] = (fp[j] - fm[j]) / (2 * h)
-		}
-	}
-	return jac
-}
-
 func quadForm(g, V []float64) float64 {
 	P := len(g)
 	s := 0.0
@@ -261,9 +282,8 @@ type MarginalEffect struct {
 // AverageMarginalEffects returns, for every predictor and category, the
 // weighted average over the rows of d of dP(y=j)/dx_k (or, for a 0/1
 // predictor, of P(y=j | x_k=1) - P(y=j | x_k=0)), with delta-method
-// standard errors (the Jacobian in the parameters is analytic for the
-// probabilities; for derivative effects it is differentiated numerically)
-// and intervals at the given level.
+// standard errors (AverageDifference and AverageSlope: the Jacobian in the
+// parameters written out) and intervals at the given level.
 func (r *Result) AverageMarginalEffects(d *Data, level float64) ([]MarginalEffect, error) {
 	binary := make([]bool, len(d.Predictors))
 	for k := range binary {
@@ -286,94 +306,34 @@ func (r *Result) MarginalEffectsAt(x []float64, binary []bool, level float64) ([
 }
 
 func (r *Result) marginalEffects(d *Data, binaryOf []bool, level float64) ([]MarginalEffect, error) {
-	pr, err := r.problem()
-	if err != nil {
-		return nil, err
-	}
-	if level <= 0 || level >= 1 {
-		level = 0.95
-	}
-	K, J, P := len(r.Predictors), r.J, len(r.Estimates)
+	K := len(r.Predictors)
 	if len(d.Predictors) != K {
 		return nil, fmt.Errorf("data have %d predictors, the fit %d", len(d.Predictors), K)
 	}
 	n := d.N()
-	df := r.ReferenceDF()
-	z := TQuantile(0.5+level/2, df)
 	var out []MarginalEffect
 	for k := 0; k < K; k++ {
-		binary := binaryOf[k]
-		eff := func(theta []float64) ([]float64, []float64) {
-			ame := make([]float64, J)
-			jac := make([]float64, J*P)
-			tot := 0.0
-			x := make([]float64, K)
-			p0, p1 := make([]float64, J), make([]float64, J)
+		var eff []MarginalEffect
+		var err error
+		if binaryOf[k] {
+			// the change from x_k = 0 to x_k = 1
+			X0, X1 := slices.Clone(d.X[:n*K]), slices.Clone(d.X[:n*K])
 			for i := 0; i < n; i++ {
-				w := 1.0
-				if d.Weights != nil {
-					w = d.Weights[i]
-				}
-				if w == 0 {
-					continue
-				}
-				tot += w
-				copy(x, d.X[i*K:(i+1)*K])
-				off := 0.0
-				if d.Offset != nil {
-					off = d.Offset[i]
-				}
-				if binary {
-					x[k] = 1
-					pr.probsAt(theta, x, off, p1)
-					g1 := pr.rowJacobian(theta, x, off)
-					x[k] = 0
-					pr.probsAt(theta, x, off, p0)
-					g0 := pr.rowJacobian(theta, x, off)
-					for j := 0; j < J; j++ {
-						ame[j] += w * (p1[j] - p0[j])
-						for a := 0; a < P; a++ {
-							jac[j*P+a] += w * (g1[j*P+a] - g0[j*P+a])
-						}
-					}
-					continue
-				}
-				// dP_j/dx_k = sum_m dP_j/dL_m * dL_m/dx_k, dL_m/dx_k = -b_mk.
-				L := pr.rowLinear(theta, x, off)
-				D := make([]float64, J*(J-1))
-				pr.ker.dprobsDL(L, D)
-				B := pr.ly.effects(theta, r.Model.Effects)
-				for j := 0; j < J; j++ {
-					for m := 0; m < J-1; m++ {
-						ame[j] -= w * D[j*(J-1)+m] * B[m*K+k]
-					}
-				}
+				X0[i*K+k], X1[i*K+k] = 0, 1
 			}
-			for j := range ame {
-				ame[j] /= tot
+			eff, err = r.AverageDifference(r.Predictors[k], X0, X1, d.Offset, d.Weights, level)
+		} else {
+			// the derivative: x_k moves by 1, the other columns stay
+			dX := make([]float64, n*K)
+			for i := 0; i < n; i++ {
+				dX[i*K+k] = 1
 			}
-			for a := range jac {
-				jac[a] /= tot
-			}
-			return ame, jac
+			eff, err = r.AverageSlope(r.Predictors[k], d.X[:n*K], dX, d.Offset, d.Weights, level)
 		}
-		ame, jac := eff(r.Estimates)
-		if !binary {
-			// Jacobian of the derivative effect by central differences.
-			jac = centralJacobian(func(th []float64) []float64 { e, _ := eff(th); return e }, r.Estimates)
+		if err != nil {
+			return nil, err
 		}
-		for j := 0; j < J; j++ {
-			se := math.Sqrt(quadForm(jac[j*P:(j+1)*P], r.Cov))
-			me := MarginalEffect{Predictor: r.Predictors[k], Category: r.Categories[j], Discrete: binary, Effect: ame[j], SE: se}
-			if se > 0 {
-				me.Z = ame[j] / se
-				me.P = TSurvival2(me.Z, df)
-			} else {
-				me.P = 1 // an effect fixed by the model (no sampling variation)
-			}
-			me.Low, me.High = ame[j]-z*se, ame[j]+z*se
-			out = append(out, me)
-		}
+		out = append(out, eff...)
 	}
 	return out, nil
 }

@@ -97,53 +97,105 @@ func (r *Result) AverageDifferences(name string, versions, n int, row func(v, i 
 // probabilities in a numeric source variable whose design columns move by
 // dX (n x K: the derivative of each design column in the variable, through
 // transformations, splines and interactions). Standard errors by the delta
-// method, the Jacobian in the parameters by central differences.
+// method with the analytic Jacobian of the effect in the parameters
+// (averageSlope).
 func (r *Result) AverageSlope(name string, X, dX, offset, w []float64, level float64) ([]MarginalEffect, error) {
 	pr, err := r.problem()
 	if err != nil {
 		return nil, err
 	}
-	K, J := len(r.Predictors), r.J
+	K := len(r.Predictors)
 	if len(X) != len(dX) || K > 0 && len(X)%K != 0 {
 		return nil, fmt.Errorf("design rows of different sizes")
 	}
+	eff, jac := pr.averageSlope(r.Estimates, X, dX, offset, w, true)
+	return r.effectRows(name, false, eff, jac, level), nil
+}
+
+// averageSlope returns the weighted average over the rows of X (n x K) of
+// the derivative of the category probabilities along dX at theta,
+//
+//	e_j = sum_m dP_j/dL_m (L) s_m,  s_m = dL_m along dx = -sum_k b_mk dx_k,
+//
+// and, with jacobian, its Jacobian in theta (J x P) written out:
+//
+//	de_j/dtheta = sum_m sum_l d2P_j/dL_m dL_l s_m dL_l/dtheta + sum_m dP_j/dL_m ds_m/dtheta,
+//
+// where ds_m/dtheta is the Jacobian of L at dx without the cutpoints (L is
+// affine in x; for a constrained predictor b_mk = phi_m g_k, both factors
+// parameters). It holds to rounding whatever the scale of a column, where
+// differences in theta would need steps matched to each column.
+func (pr *problem) averageSlope(theta, X, dX, offset, w []float64, jacobian bool) (eff, jac []float64) {
+	K, q, P := pr.ly.K, pr.q, len(theta)
+	J := q + 1
 	n := 1
 	if K > 0 {
 		n = len(X) / K
 	}
-	slope := func(theta []float64) []float64 {
-		eff := make([]float64, J)
-		B := pr.ly.effects(theta, r.Model.Effects)
-		D := make([]float64, J*(J-1))
-		dL := make([]float64, J-1)
-		tot := eachWeightedRow(n, w, offset, func(i int, wi, off float64) {
-			x, dx := X[i*K:(i+1)*K], dX[i*K:(i+1)*K]
-			L := pr.rowLinear(theta, x, off)
-			pr.ker.dprobsDL(L, D)
-			// dL_m = -sum_k b_mk dx_k
-			for m := 0; m < J-1; m++ {
-				s := 0.0
-				for k := 0; k < K; k++ {
-					if dx[k] != 0 {
-						s += B[m*K+k] * dx[k]
-					}
-				}
-				dL[m] = -s
-			}
-			for j := 0; j < J; j++ {
-				for m := 0; m < J-1; m++ {
-					eff[j] += wi * D[j*(J-1)+m] * dL[m]
-				}
-			}
-		})
-		for j := range eff {
-			eff[j] /= tot
-		}
-		return eff
+	c := pr.coefs(theta)
+	dv := pr.derivs(theta)
+	B := pr.ly.effects(theta, pr.model.Effects)
+	eff = make([]float64, J)
+	L, dL, D := make([]float64, q), make([]float64, q), make([]float64, J*q)
+	var T, dLt, dS, v []float64
+	if jacobian {
+		jac = make([]float64, J*P)
+		T, dLt, dS, v = make([]float64, J*q*q), make([]float64, q*P), make([]float64, q*P), make([]float64, q)
 	}
-	eff := slope(r.Estimates)
-	jac := centralJacobian(slope, r.Estimates)
-	return r.effectRows(name, false, eff, jac, level), nil
+	tot := eachWeightedRow(n, w, offset, func(i int, wi, off float64) {
+		x, dx := X[i*K:(i+1)*K], dX[i*K:(i+1)*K]
+		pr.linearRow(c, x, off, L)
+		pr.ker.dprobsDL(L, D, T)
+		for m := 0; m < q; m++ {
+			s := 0.0
+			for k := 0; k < K; k++ {
+				if dx[k] != 0 {
+					s += B[m*K+k] * dx[k]
+				}
+			}
+			dL[m] = -s
+		}
+		for j := 0; j < J; j++ {
+			for m := 0; m < q; m++ {
+				eff[j] += wi * D[j*q+m] * dL[m]
+			}
+		}
+		if !jacobian {
+			return
+		}
+		pr.linearJacobian(dv, c, x, true, dLt)
+		pr.linearJacobian(dv, c, dx, false, dS)
+		for j := 0; j < J; j++ {
+			// v_l = sum_m d2P_j/dL_m dL_l s_m
+			for l := range v {
+				v[l] = 0
+			}
+			for m := 0; m < q; m++ {
+				if dL[m] == 0 {
+					continue
+				}
+				for l := 0; l < q; l++ {
+					v[l] += T[(j*q+m)*q+l] * dL[m]
+				}
+			}
+			row := jac[j*P : (j+1)*P]
+			for l := 0; l < q; l++ {
+				if t := wi * v[l]; t != 0 {
+					axpy(row, t, dLt[l*P:(l+1)*P])
+				}
+				if t := wi * D[j*q+l]; t != 0 {
+					axpy(row, t, dS[l*P:(l+1)*P])
+				}
+			}
+		}
+	})
+	for j := range eff {
+		eff[j] /= tot
+	}
+	for a := range jac {
+		jac[a] /= tot
+	}
+	return eff, jac
 }
 
 // effectRows turns per-category effects and their Jacobian into rows with
