@@ -875,17 +875,11 @@ func (d *decoder) checkTransforms(p *Plan) {
 			}
 			seen[ts.Key] = true
 			col := ts.Source
-			fn, bound, need := "sqrt("+col+")", 0.0, "of 0 or more"
+			fn, bound, need := tr.ValueText(col), 0.0, "of 0 or more"
 			undefined := "below 0"
 			bad := func(v float64) bool { return v < 0 }
 			if tr.Log {
-				fn, bound = "log("+col+")", -tr.Shift+0 // +0: no "-0"
-				switch {
-				case tr.Shift > 0:
-					fn = "log(" + col + " + " + fmtNum(tr.Shift) + ")"
-				case tr.Shift < 0:
-					fn = "log(" + col + " - " + fmtNum(-tr.Shift) + ")"
-				}
+				bound = -tr.Shift + 0 // +0: no "-0"
 				undefined, need = "at or below "+fmtNum(bound), "above "+fmtNum(bound)
 				bad = func(v float64) bool { return v <= bound }
 			}

@@ -106,13 +106,10 @@ func (d *decoder) checkDrawDomain(p *Plan, cm ColumnModel) {
 				continue
 			}
 			seen[t.Key] = true
-			bound, how := "values below 0", fmt.Sprintf("sqrt(%s)", cm.Column)
+			bound, how := "values below 0", t.ValueText(cm.Column)
 			if t.Log {
 				// 0 - shift: never "-0"
-				bound, how = fmt.Sprintf("values at or below %s", fmtNum(0-t.Shift)), fmt.Sprintf("log(%s)", cm.Column)
-				if t.Shift != 0 {
-					how = fmt.Sprintf("log(%s + %s)", cm.Column, fmtNum(t.Shift))
-				}
+				bound = fmt.Sprintf("values at or below %s", fmtNum(0-t.Shift))
 			}
 			d.errAt(cm.Key, "normal_draw draws %s from a normal distribution, which can give %s, where %s of the term %s (%s) is undefined: a run would stop on the first such draw; impute %s by %s (the default), which imputes values observed in the data", cm.Column, bound, how, t.Name, t.Key, cm.Column, chained.MeanMatching)
 			return

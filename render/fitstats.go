@@ -113,7 +113,7 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		if where {
 			row = append(row, o.HoldsAt)
 		}
-		rows = append(rows, append(row, at, numfmt.Fixed(o.Ratio, 4), numfmt.Fixed(o.Low, 4), numfmt.Fixed(o.High, 4)))
+		rows = append(rows, append(append(row, at), numfmt.Ratios(o.Ratio, o.Low, o.High)...))
 	}
 	head := []string{"Predictor", "Change"}
 	if where {

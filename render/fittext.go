@@ -230,7 +230,8 @@ func oddsRatioText(w io.Writer, r *fit.Result, readings []runner.ColumnReading, 
 		if where {
 			row += o.HoldsAt + "\t"
 		}
-		fmt.Fprintf(tw, "%s%s\t%s\t[%s, %s]\n", row, at, numfmt.Fixed(o.Ratio, 4), numfmt.Fixed(o.Low, 4), numfmt.Fixed(o.High, 4))
+		v := numfmt.Ratios(o.Ratio, o.Low, o.High)
+		fmt.Fprintf(tw, "%s%s\t%s\t[%s, %s]\n", row, at, v[0], v[1], v[2])
 	}
 	if err := tw.Flush(); err != nil {
 		return err

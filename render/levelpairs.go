@@ -254,7 +254,7 @@ func writePairOddsRatios(d *doc, or *runner.OutcomeResult, set runner.LevelPairS
 		if o.Boundary > 0 {
 			b = fmt.Sprintf("%d (%s/%s)", o.Boundary, res.Categories[o.Boundary-1], res.Categories[o.Boundary])
 		}
-		row := []string{o.Change, b, numfmt.Fixed(o.Ratio, 4), numfmt.Fixed(o.Low, 4), numfmt.Fixed(o.High, 4), numfmt.Z(o.Z), numfmt.PValue(o.P)}
+		row := append(append([]string{o.Change, b}, numfmt.Ratios(o.Ratio, o.Low, o.High)...), numfmt.Z(o.Z), numfmt.PValue(o.P))
 		if o.Adjusted != nil {
 			row = append(row, numfmt.PValue(*o.Adjusted))
 		}

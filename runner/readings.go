@@ -151,7 +151,7 @@ func termReadings(dz *design.Design, raw *data.Dataset, k int, per [][]ColumnRea
 		return out
 	}
 	tr := t.Transform
-	expr := valueText(dz.Sources[t.Source].Name, tr)
+	expr := tr.ValueText(dz.Sources[t.Source].Name)
 	if tr.Poly > 0 || tr.Spline() {
 		out := make([]ColumnReading, len(t.Columns))
 		for i, col := range t.Columns {
@@ -204,20 +204,6 @@ func zeroOneColumns(fd *fit.Data) []bool {
 		out[k] = len(fd.X) == fd.N()*K && zeroOne(fd.X, K, k)
 	}
 	return out
-}
-
-// valueText writes the value a numeric term's columns are made of, before
-// centring and scaling: "x", "log(x + 1)", "sqrt(x)".
-func valueText(col string, tr design.Transform) string {
-	switch {
-	case tr.Log && tr.Shift != 0:
-		return fmt.Sprintf("log(%s + %g)", col, tr.Shift)
-	case tr.Log:
-		return fmt.Sprintf("log(%s)", col)
-	case tr.Sqrt:
-		return fmt.Sprintf("sqrt(%s)", col)
-	}
-	return col
 }
 
 // baseTerms lists the terms that are not interactions under term k: k
@@ -309,7 +295,7 @@ func zeroText(dz *design.Design, k int, ranges *sourceRanges) string {
 			return fmt.Sprintf("the columns of %s at 0, which no value of %s gives", t.Name, col)
 		}
 		// A square root centred below 0.
-		return fmt.Sprintf("sqrt(%s) = %s, which no value of %s gives", col, strconv.FormatFloat(tr.CentreAt, 'g', 6, 64), col)
+		return fmt.Sprintf("%s = %s, which no value of %s gives", tr.ValueText(col), strconv.FormatFloat(tr.CentreAt, 'g', 6, 64), col)
 	}
 	var notes []string
 	if basis {

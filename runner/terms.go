@@ -229,17 +229,7 @@ func levelColumns(r design.TermRecord) string {
 // every constant taken from the data and the rows it was taken from.
 func describeNumeric(r design.TermRecord, rows string) string {
 	col := r.Reads[0]
-	v := col
-	switch {
-	case r.Log && r.Shift > 0:
-		v = fmt.Sprintf("log(%s + %g)", col, r.Shift)
-	case r.Log && r.Shift < 0:
-		v = fmt.Sprintf("log(%s - %g)", col, -r.Shift)
-	case r.Log:
-		v = fmt.Sprintf("log(%s)", col)
-	case r.Sqrt:
-		v = fmt.Sprintf("sqrt(%s)", col)
-	}
+	v := design.Transform{Log: r.Log, Shift: r.Shift, Sqrt: r.Sqrt}.ValueText(col)
 	of := v // the value the sample constants are of
 	var where []string
 	if r.Log {

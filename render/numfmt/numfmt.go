@@ -91,6 +91,29 @@ func Est(x float64) string {
 	return Fixed(x, EstimateDecimals)
 }
 
+// RatioDecimals is the fewest decimals of an odds ratio (or another ratio
+// whose value of no effect is 1) and its limits.
+const RatioDecimals = 4
+
+// Ratios formats an odds ratio and its interval limits (or any ratios read
+// against 1) with one number of decimals: RatioDecimals, or more while a
+// value that is not 1 would not show two significant digits of its
+// distance from 1 (a ratio per dollar, 1.0000065, is not written 1.0000),
+// at most 12. What is not a finite number reads as in Num.
+func Ratios(x ...float64) []string {
+	d := RatioDecimals
+	for _, v := range x {
+		if a := math.Abs(v - 1); a > 0 && !math.IsInf(a, 0) && !math.IsNaN(a) {
+			d = max(d, min(12, 1-int(math.Floor(math.Log10(a)))))
+		}
+	}
+	out := make([]string, len(x))
+	for i, v := range x {
+		out[i] = Fixed(v, d)
+	}
+	return out
+}
+
 // Stat formats a test statistic.
 func Stat(x float64) string { return Fixed(x, StatisticDecimals) }
 

@@ -3,6 +3,7 @@ package numfmt
 import (
 	"fmt"
 	"math"
+	"strings"
 	"testing"
 )
 
@@ -143,6 +144,30 @@ func TestFixedNegativeZero(t *testing.T) {
 	}{{-0.0001, 3, "0.000"}, {-0.0004, 3, "0.000"}, {-0.0005001, 3, "-0.001"}, {-0.2, 0, "0"}, {-1.5, 0, "-2"}, {-0.0, 2, "0.00"}} {
 		if got := Fixed(c.x, c.d); got != c.want {
 			t.Errorf("Fixed(%v, %d) = %q, want %q", c.x, c.d, got, c.want)
+		}
+	}
+}
+
+// Ratios: four decimals while every value is 1e-3 or more away from 1;
+// otherwise enough for two significant digits of the smallest distance from
+// 1 (at most 12), the same decimals for the ratio and its limits.
+func TestRatios(t *testing.T) {
+	cases := []struct {
+		x    []float64
+		want string
+	}{
+		{[]float64{1.5, 1.2, 1.875}, "1.5000 1.2000 1.8750"},
+		{[]float64{1.0032, 0.99871, 1.0077}, "1.0032 0.9987 1.0077"},
+		{[]float64{1.00032, 1.00011, 1.00053}, "1.00032 1.00011 1.00053"},
+		{[]float64{1.0000065, 1.0000053, 1.0000077}, "1.0000065 1.0000053 1.0000077"},
+		{[]float64{0.9999935, 0.99999, 1.0000012}, "0.9999935 0.9999900 1.0000012"},
+		{[]float64{1, 1, 1}, "1.0000 1.0000 1.0000"},
+		{[]float64{1 + 1e-15, 1, 1}, "1.000000000000 1.000000000000 1.000000000000"},
+		{[]float64{math.Inf(1), 2, math.NaN()}, "inf 2.0000 n/a"},
+	}
+	for _, c := range cases {
+		if got := strings.Join(Ratios(c.x...), " "); got != c.want {
+			t.Errorf("Ratios(%v) = %q, want %q", c.x, got, c.want)
 		}
 	}
 }

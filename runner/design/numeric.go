@@ -159,7 +159,7 @@ func undefinedAt(tr Transform, x float64) (y float64, why, advice string) {
 		y := x + tr.Shift
 		if !(y > 0) {
 			if tr.Shift != 0 {
-				return 0, fmt.Sprintf("log(%s + %s) is undefined: the value plus the shift is not positive", fmtNum(x), fmtNum(tr.Shift)), ""
+				return 0, fmt.Sprintf("%s is undefined: the value plus the shift is not positive", Transform{Log: true, Shift: tr.Shift}.ValueText(fmtNum(x))), ""
 			}
 			if x < 0 {
 				return 0, fmt.Sprintf("log(%s) is undefined: the value is negative, and a logarithm needs positive values", fmtNum(x)), ""

@@ -50,6 +50,24 @@ func (t Transform) Empty() bool {
 	return !t.Log && !t.Sqrt && t.Centre == "" && !t.Scale && t.Poly == 0 && t.Knots == nil && t.Quantiles == nil
 }
 
+// ValueText names the value of raw column col that t's columns are made
+// of, before centring and scaling: "x", "log(x + 1)", "log(x - 10)",
+// "sqrt(x)". Every name of a log or square root is written by it (col may
+// be a value, in messages about one).
+func (t Transform) ValueText(col string) string {
+	switch {
+	case t.Log && t.Shift > 0:
+		return "log(" + col + " + " + fmtNum(t.Shift) + ")"
+	case t.Log && t.Shift < 0:
+		return "log(" + col + " - " + fmtNum(-t.Shift) + ")"
+	case t.Log:
+		return "log(" + col + ")"
+	case t.Sqrt:
+		return "sqrt(" + col + ")"
+	}
+	return col
+}
+
 // Spline reports whether t ends in a spline basis.
 func (t Transform) Spline() bool { return t.Knots != nil || t.Quantiles != nil }
 
