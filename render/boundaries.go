@@ -89,7 +89,7 @@ func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			row = append(row, chosenCell(chosen, k))
 		}
 		rows = append(rows, row)
-		cs = append(cs, boundaryChart(d, pred, bounds, est, se, boundaryQuantiles(res, k, level), level, par, chosen, ch.Effects.String(), k))
+		cs = append(cs, boundaryChart(d, pred, res.Categories, est, se, boundaryQuantiles(res, k, level), level, par, chosen, ch.Effects.String(), k))
 	}
 	if len(rows) > 0 {
 		d.captioned(fmt.Sprintf("Slopes at each boundary, %s", npID)).table(head, rows)
@@ -183,8 +183,12 @@ func chosenCell(res *fit.Result, k int) string {
 }
 
 // boundaryChart draws one predictor's slopes across the boundaries.
-func boundaryChart(d *doc, pred string, bounds []string, est, se, crit []float64, level float64, par *runner.FitEntry, chosen *fit.Result, chosenLevel string, k int) *chart {
-	q := len(bounds)
+func boundaryChart(d *doc, pred string, cats []string, est, se, crit []float64, level float64, par *runner.FitEntry, chosen *fit.Result, chosenLevel string, k int) *chart {
+	q := len(cats) - 1
+	bounds := make([]string, q)
+	for m := range bounds {
+		bounds[m] = fit.BoundaryLabel(cats, m)
+	}
 	lo, hi := make([]float64, q), make([]float64, q)
 	for m := range est {
 		lo[m], hi[m] = est[m]-crit[m]*se[m], est[m]+crit[m]*se[m]
@@ -200,7 +204,17 @@ func boundaryChart(d *doc, pred string, bounds []string, est, se, crit []float64
 	// Long category names make long boundary names: they turn, shortened
 	// to an ellipsis beyond a width (the tooltip and the table above give
 	// them whole), and the axis name moves below them.
+	axisNames := bounds
 	labels := layoutCategories(bounds, 10, chartTextWidth-50, 130)
+	if labels.rotate != 0 {
+		// Two lines, lower and upper category, so that both show (the
+		// static figure too).
+		axisNames = make([]string, q)
+		for m := range axisNames {
+			axisNames[m] = cats[m] + "/\n" + cats[m+1]
+		}
+		labels = layoutCategories(axisNames, 10, chartTextWidth-50, 130)
+	}
 	fr := &chartFrame{id: d.chartID(), title: pred, subtitle: "slope at each boundary", height: 340 + int(labels.extent-labels.upright(10)),
 		grid: opts.Grid{Left: leftFor(labels, "4%"), Right: "6%", Top: "60", Bottom: "60"}, legend: legend}
 	l := charts.NewLine()
@@ -208,7 +222,7 @@ func boundaryChart(d *doc, pred string, bounds []string, est, se, crit []float64
 		charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: "boundary", NameLocation: "middle", NameGap: int(labels.extent) + 7,
 			AxisLabel: labels.axisLabel(10)}),
 		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: "slope", Scale: opts.Bool(true)}))...)
-	l.SetXAxis(bounds)
+	l.SetXAxis(axisNames)
 	l.AddSeries("nonparallel", lineData(est), lineStyle(colorEstimate, 2.5, false, true)...)
 	// Both bounds carry the same name, so the legend shows one entry.
 	l.AddSeries(band, lineData(lo), lineStyle(colorEstimate, 1, true, false)...)
@@ -232,7 +246,7 @@ func boundaryChart(d *doc, pred string, bounds []string, est, se, crit []float64
 		caption += ", and the parallel slope (flat line)"
 	}
 	fig := newFigure(pred+": slope at each boundary", "boundary", "slope")
-	fig.xNames = bounds
+	fig.xNames = axisNames
 	fig.series = append([]figSeries{
 		{name: band, color: colorEstimate, ys: lo, dashed: true, width: 1, legend: true},
 		{name: band, color: colorEstimate, ys: hi, dashed: true, width: 1},

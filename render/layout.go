@@ -183,19 +183,28 @@ type categoryLabels struct {
 }
 
 func layoutCategories(names []string, size, axisWidth, maxWidth float64) categoryLabels {
-	widest := 0.0
+	// A label may have several lines; the library cuts each at the width.
+	lineWidth := func(n string) float64 {
+		w := 0.0
+		for _, l := range strings.Split(n, "\n") {
+			w = max(w, textWidth(l, size))
+		}
+		return w
+	}
+	widest, lines := 0.0, 1
 	for _, n := range names {
-		widest = max(widest, textWidth(n, size))
+		widest = max(widest, lineWidth(n))
+		lines = max(lines, strings.Count(n, "\n")+1)
 	}
 	slot := axisWidth / float64(max(len(names), 1))
-	lineH := 1.3 * size
+	lineH := 1.3 * size * float64(lines)
 	if widest <= slot-2 {
-		return categoryLabels{interval: "0", extent: lineH + 8, overhang: textWidth(names[0], size) / 2}
+		return categoryLabels{interval: "0", extent: lineH + 8, overhang: lineWidth(names[0]) / 2}
 	}
 	const deg = 30.0
 	th := deg * math.Pi / 180
 	w := min(widest, maxWidth)
-	first := min(textWidth(names[0], size), maxWidth)
+	first := min(lineWidth(names[0]), maxWidth)
 	l := categoryLabels{rotate: deg, width: maxWidth, interval: "0",
 		extent:   8 + w*math.Sin(th) + lineH*math.Cos(th),
 		overhang: first*math.Cos(th) + lineH*math.Sin(th)/2}

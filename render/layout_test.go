@@ -54,6 +54,13 @@ func TestCategoryLabelsLayout(t *testing.T) {
 	if l.rotate == 0 || l.width != 130 || l.interval != "0" || leftFor(l, "4%") == "4%" {
 		t.Errorf("long labels: %+v", l)
 	}
+	two := layoutCategories([]string{"completely disagree with the proposal as described/\nmostly disagree", "a/\nb", "b/\nc"}, 10, chartTextWidth-50, 130)
+	if two.rotate == 0 || two.extent <= l.extent {
+		t.Errorf("two-line labels: %+v, one-line %+v", two, l)
+	}
+	if w := textWidth("completely disagree with the proposal as described/", 10); two.width != 130 || w < 130 {
+		t.Errorf("two-line labels are not cut line by line: %+v", two)
+	}
 	many := make([]string, 60)
 	for i := range many {
 		many[i] = "a rather long boundary name"

@@ -67,6 +67,16 @@ const (
 	figLegendMax = 5 * vg.Centimeter
 )
 
+// tickLabel is the label of a category as drawn: each line cut to the
+// width allowed.
+func (f *figure) tickLabel(p *plot.Plot, name string) string {
+	lines := strings.Split(name, "\n")
+	for i, l := range lines {
+		lines[i] = fitWidth(l, float64(f.tickMax()), measured(p.X.Tick.Label.Width))
+	}
+	return strings.Join(lines, "\n")
+}
+
 func (f *figure) tickMax() vg.Length {
 	if f.xNameMax > 0 {
 		return f.xNameMax
@@ -153,7 +163,7 @@ func (f *figure) tickOverhang(p *plot.Plot, c draw.Canvas) vg.Length {
 	}
 	// The label's box turned by the rotation, with a tenth more width for
 	// viewers whose font runs wider than the one measured here.
-	size := p.X.Tick.Label.Rectangle(fitWidth(f.xNames[0], float64(f.tickMax()), measured(p.X.Tick.Label.Width))).Size()
+	size := p.X.Tick.Label.Rectangle(f.tickLabel(p, f.xNames[0])).Size()
 	th := p.X.Tick.Label.Rotation
 	reach := 1.1*size.X*vg.Length(math.Cos(th)) + size.Y*vg.Length(math.Sin(th)) + legendGap
 	data := p.DataCanvas(c)
@@ -182,7 +192,7 @@ func (f *figure) plot() (*plot.Plot, *plot.Legend, error) {
 	if f.xNames != nil {
 		var ticks []plot.Tick
 		for i, n := range f.xNames {
-			ticks = append(ticks, plot.Tick{Value: float64(i), Label: fitWidth(n, float64(f.tickMax()), measured(p.X.Tick.Label.Width))})
+			ticks = append(ticks, plot.Tick{Value: float64(i), Label: f.tickLabel(p, n)})
 		}
 		p.X.Tick.Marker = plot.ConstantTicks(ticks)
 		p.X.Min, p.X.Max = -0.5, float64(len(f.xNames))-0.5
