@@ -13,9 +13,9 @@ import (
 )
 
 // Per-unit marginal effects of variables whose model columns take large
-// values: income in dollars (5e4) and its product with age (2.5e6), and a
-// raw cubic in age (6e5). The data are invented, made by
-// testdata/slopes/gen.R with fixed seeds.
+// values: income in dollars (5e4) and its product with age (2.5e6), a raw
+// cubic in age (6e5), dose squared times centred age (5e4). The data are
+// invented, made by testdata/slopes/gen.R with fixed seeds.
 
 const slopesBinaryPlan = `version: 1
 title: satisfaction by income in dollars
@@ -50,6 +50,32 @@ rules:
 inference:
   marginal_effects: [average, means, profile]
   profile: {age: 70, female: 1}
+`
+
+const slopesAdjacentPlan = `version: 1
+title: pain relief by dose
+data: {file: pain.csv}
+subset:
+  - {column: age, at_least: 18}
+outcomes:
+  - column: relief
+    categories: [none, slight, moderate, complete]
+categorical:
+  drug: {levels: [alpha, beta, gamma], reference: gamma}
+predictors:
+  - {name: ldose, column: dose, log: {shift: 1}}
+  - {name: dosep, column: dose, polynomial: {degree: 2, basis: raw}}
+  - {name: agec, column: age, centre: mean}
+  - drug
+  - sex
+  - {interact: [dosep, agec]}
+models: {approaches: [adjacent], effects: [nonparallel], links: [logit]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: bic}
+inference:
+  marginal_effects: [average, means, profile]
+  profile: {dose: 20, age: 30, drug: beta, sex: 0}
 `
 
 // slopesData reads a file of testdata/slopes.
@@ -99,8 +125,13 @@ type slopeRow struct {
 // (one row per stage reached, an intercept per stage); R writes out
 // dP(y = k)/dage through the raw cubic and differentiates it in glm's
 // coefficients with steps scaled to each column
-// (testdata/rcheck/slopesstage.R). Measured agreement is logged; the limit
-// is 1e-6 relative.
+// (testdata/rcheck/slopesstage.R). The adjacent-category nonparallel logit
+// model is the baseline-category logit, which nnet::multinom fits (refined
+// by Newton steps in R); R writes out dP(y = k)/ddose and dP(y = k)/dage
+// through log(dose + 1), dose^2 and their products with centred age, and
+// differentiates them in the coefficients as for the stage model
+// (testdata/rcheck/slopesadjacent.R; skipped without nnet). Measured
+// agreement is logged; the limit is 1e-6 relative.
 func TestPerUnitEffectsAgainstGlm(t *testing.T) {
 	rscript.Require(t)
 	near, worst := agreeWithR(t, 1e-6)
@@ -138,8 +169,30 @@ func TestPerUnitEffectsAgainstGlm(t *testing.T) {
 			seen++
 		}
 	}
-	if seen != 12+15 {
-		t.Errorf("%d effects compared, want 27", seen)
+	if nnet := rscript.HasPackage(t, "nnet"); nnet {
+		p = writePlan(t, slopesAdjacentPlan, map[string]string{"pain.csv": slopesData(t, "pain.csv")})
+		or = runPlan(t, p, 0).Outcomes[0]
+		vals = rscript.Run(t, filepath.Dir(p.Path), "testdata/rcheck/slopesadjacent.R")
+		for _, v := range []string{"dose", "age"} {
+			got := perUnit(t, or, v)
+			for _, kind := range []string{"average", "means", "profile"} {
+				r := vals.Get(t, kind+"_"+v)
+				if len(r) != 8 || len(got[kind]) != 4 {
+					t.Fatalf("%s %s: R printed %d values, the run has %d categories", kind, v, len(r), len(got[kind]))
+				}
+				for j, e := range got[kind] {
+					near(kind+" "+v+" "+e.Category, e.Effect, r[j], r[4+j])
+					near(kind+" "+v+" "+e.Category+" se", e.SE, r[4+j], 0)
+					seen++
+				}
+			}
+		}
+	} else {
+		t.Log("R package nnet is not installed: the adjacent-category check is skipped")
+		seen += 24
+	}
+	if seen != 12+15+24 {
+		t.Errorf("%d effects compared, want 51", seen)
 	}
 	t.Logf("largest relative difference from R: %.2g", *worst)
 }

@@ -32,3 +32,20 @@ y <- 1 + rowSums(outer(eta + u, cuts, ">"))
 lev <- c("poor","fair","good","verygood","excellent")
 d <- data.frame(srh=lev[y], age, region, income, bmi, female)
 write.csv(d, "srh.csv", row.names=FALSE, quote=FALSE)
+
+# pain.csv: a four-category pain relief by dose (0 to 40; log(dose + 1), a
+# raw square of dose and its product with centred age reach 8e4), age,
+# drug and a 0/1 column, drawn from adjacent-category logits.
+set.seed(4242)
+n <- 700
+dose <- sample(c(0, 5, 10, 20, 40), n, replace=TRUE)
+age <- round(runif(n, 12, 80))
+drug <- sample(c("alpha","beta","gamma"), n, replace=TRUE)
+sex <- rbinom(n, 1, .5)
+eta <- 0.6*log(dose+1) - 0.0004*dose^2 - 0.01*(age-45) + 0.0005*dose*(age-45) + ifelse(drug=="beta", 0.4, ifelse(drug=="gamma", -0.3, 0))
+lev <- c("none","slight","moderate","complete")
+sc <- sapply(1:4, function(j) (j-1)*eta + c(0, 0.3, 0.2, -0.8)[j])
+p <- exp(sc); p <- p/rowSums(p)
+y <- apply(p, 1, function(pp) sample(1:4, 1, prob=pp))
+d <- data.frame(relief=lev[y], dose, age, drug, sex)
+write.csv(d, "pain.csv", row.names=FALSE, quote=FALSE)
