@@ -18,6 +18,7 @@ import (
 // file, including a bad header, are left to the data reader, which names
 // the line of the data file.
 func (d *decoder) checkDataColumns(p *Plan) {
+	d.checkImputedTwins(p)
 	var header []string
 	if p.Data.Parts != nil {
 		var ok bool
@@ -41,7 +42,7 @@ func (d *decoder) checkParts(p *Plan) ([]string, bool) {
 		return nil, false
 	}
 	ok := true
-	for _, msg := range PartsTwice(p.Data.PartFiles, p.Data.PartPaths) {
+	for _, msg := range slices.Concat(PartsTwice(p.Data.PartFiles, p.Data.PartPaths), PartsTwins(p.Data.PartFiles, p.Data.PartPaths)) {
 		d.errAt("data.parts", "%s", msg)
 		ok = false
 	}
@@ -73,6 +74,20 @@ func (d *decoder) checkParts(p *Plan) ([]string, bool) {
 		}
 	}
 	return first, ok && first != nil
+}
+
+// checkImputedTwins reports imputed sets of data.imputed.files that are
+// one file (a link, another path to it) or copies of one set's bytes
+// (data.Twins): Rubin's rules would count one set twice.
+func (d *decoder) checkImputedTwins(p *Plan) {
+	im := p.Data.Imputed
+	if im == nil || len(im.Paths) < 2 || !d.clean("data.imputed.files") {
+		return
+	}
+	for _, t := range data.Twins(im.Paths) {
+		d.errAt("data.imputed.files", "imputed sets %d and %d (%s and %s) %s: one set counted twice understates the variance between the imputed sets, so intervals come out too narrow and tests reject too often; list each imputed set once (a copy of a set is no new draw: each set needs its own draws of the missing values)",
+			t.First+1, t.Second+1, strconv.Quote(im.Files[t.First]), strconv.Quote(im.Files[t.Second]), twinHow(t, im.Files))
+	}
 }
 
 // reportDialect reports, at data.delimiter or data.decimal, a CSV file

@@ -180,6 +180,31 @@ func PartsTwice(files, paths []string) []string {
 	return out
 }
 
+// PartsTwins says of each part that is an earlier part's file (through a
+// link, or another path to it) or a copy of its bytes (data.Twins) that
+// its rows would be read twice, naming both parts, one message a part:
+// data.parts and ordplan fit --parts say it alike.
+func PartsTwins(files, paths []string) []string {
+	var out []string
+	for _, t := range data.Twins(paths) {
+		out = append(out, fmt.Sprintf("the parts %s and %s %s, so the same rows would be read twice; every part is read once: leave one of them out (name the parts one by one, or give a pattern that matches only one of them)",
+			strconv.Quote(files[t.First]), strconv.Quote(files[t.Second]), twinHow(t, files)))
+	}
+	return out
+}
+
+// twinHow says how two files of a list (named files) are one (data.Twin).
+func twinHow(t data.Twin, files []string) string {
+	switch {
+	case t.SameFile && t.Link >= 0:
+		other := t.First + t.Second - t.Link
+		return fmt.Sprintf("are one file (%s is a symbolic link to %s)", strconv.Quote(files[t.Link]), strconv.Quote(files[other]))
+	case t.SameFile:
+		return "are one file (a hard link, or another path to the same file)"
+	}
+	return "hold the same bytes (sha256 " + t.SHA256 + ")"
+}
+
 var (
 	dataDelimiterWords = data.DelimiterWords
 	dataDecimalWords   = data.DecimalWords

@@ -9,7 +9,9 @@ import (
 	"slices"
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/render/numfmt"
+	"ordplan/runner/data"
 )
 
 // Changes compares this run's decisions with those of an earlier run
@@ -187,4 +189,153 @@ func verdictPhrase(v Verdict) string {
 		return v.Reason
 	}
 	return word + " (" + why + ")"
+}
+
+// RecordChanges says what differs between the records (run.json) of an
+// earlier run and of this one, in the order of the record: the plan, each
+// input file it lists (the data file or each part, the new-rows file,
+// each imputed set) by name, the plan's registration, the seed, the
+// program (version, build, Go version, system), the command line and the
+// time written into the outputs. What the earlier record does not hold
+// (written by an older program) is not compared. Nothing when every
+// recorded thing is the same.
+func RecordChanges(was, now *RunRecord) []string {
+	var out []string
+	if was.Plan.SHA256 != now.Plan.SHA256 {
+		out = append(out, "the plan changed")
+	}
+	out = append(out, dataRefChanges(was.Data, now.Data)...)
+	out = append(out, fileChanges("the new-rows file", refList(was.NewRows), refList(now.NewRows))...)
+	out = append(out, fileChanges("the imputed set", was.Imputed, now.Imputed)...)
+	if !sameJSON(was.Registration, now.Registration) {
+		out = append(out, "the plan's registration (its comparison with the lock file) changed")
+	}
+	if was.Seed != now.Seed {
+		out = append(out, fmt.Sprintf("the seed changed (%d -> %d)", was.Seed, now.Seed))
+	}
+	for _, c := range []struct{ what, was, now string }{
+		{"the program version", was.Version, now.Version},
+		{"the program's build (source revision)", was.Revision, now.Revision},
+		{"the Go version of the build", was.GoVersion, now.GoVersion},
+		{"the system", was.Platform, now.Platform},
+		// the command line as recorded: without --out, --workers and the like
+		{"the command line", was.Command, now.Command},
+	} {
+		if c.was != "" && c.was != c.now { // "": the earlier program did not record it
+			out = append(out, fmt.Sprintf("%s changed (%s -> %s)", c.what, c.was, orNone(c.now)))
+		}
+	}
+	if was.Timestamp != now.Timestamp {
+		out = append(out, "the time of the run, which report.timestamp writes into the outputs")
+	}
+	return out
+}
+
+// dataRefChanges says how the data of two records differ: the data
+// file, or each part, by name.
+func dataRefChanges(was, now *DataRef) []string {
+	switch {
+	case was == nil && now == nil:
+		return nil
+	case was == nil || now == nil:
+		return []string{"the data changed (one of the runs read none)"}
+	case was.SHA256 == now.SHA256 && was.File == now.File && len(was.Parts) == len(now.Parts):
+		return nil
+	case was.Parts != nil && now.Parts != nil:
+		return fileChanges("the part", was.Parts, now.Parts)
+	case was.Parts == nil && now.Parts == nil && was.File != "" && was.File != now.File:
+		return []string{fmt.Sprintf("the data file is now %s (was %s)", now.File, was.File)}
+	case was.Parts == nil && now.Parts == nil:
+		return []string{"the data file " + now.File + " changed"}
+	}
+	return []string{"the data changed from " + dataRefName(was) + " to " + dataRefName(now)}
+}
+
+// dataRefName names the data of a record: its file, or its parts.
+func dataRefName(r *DataRef) string {
+	if r.Parts == nil {
+		return "the file " + r.File
+	}
+	names := make([]string, len(r.Parts))
+	for i, p := range r.Parts {
+		names[i] = p.File
+	}
+	return data.PartsName(names)
+}
+
+// fileChanges says which files of a list (what names one: "the part")
+// changed, are new or are no longer read, by name; a list read in
+// another order is said so.
+func fileChanges(what string, was, now []DataRef) []string {
+	var out []string
+	if len(was) == 1 && len(now) == 1 && was[0].File != now[0].File {
+		return []string{fmt.Sprintf("%s is now %s (was %s)", what, now[0].File, was[0].File)}
+	}
+	before := map[string]string{}
+	for _, r := range was {
+		before[r.File] = r.SHA256
+	}
+	var added []string
+	for _, r := range now {
+		h, ok := before[r.File]
+		switch {
+		case !ok:
+			added = append(added, r.File)
+		case h != r.SHA256:
+			out = append(out, what+" "+r.File+" changed")
+		}
+		delete(before, r.File)
+	}
+	if len(added) > 0 {
+		out = append(out, fmt.Sprintf("%s %s new", plural(what, len(added)), words.AndList(added)+isAre(len(added))))
+	}
+	var gone []string
+	for _, r := range was {
+		if _, ok := before[r.File]; ok {
+			gone = append(gone, r.File)
+		}
+	}
+	if len(gone) > 0 {
+		out = append(out, fmt.Sprintf("%s %s no longer read", plural(what, len(gone)), words.AndList(gone)+isAre(len(gone))))
+	}
+	if len(out) == 0 && !slices.EqualFunc(was, now, func(a, b DataRef) bool { return a.File == b.File }) {
+		out = append(out, fmt.Sprintf("%ss are read in another order", what))
+	}
+	return out
+}
+
+func plural(what string, n int) string {
+	if n == 1 {
+		return what
+	}
+	return what + "s"
+}
+
+func isAre(n int) string {
+	if n == 1 {
+		return " is"
+	}
+	return " are"
+}
+
+// refList is a record's optional file as a list.
+func refList(r *DataRef) []DataRef {
+	if r == nil {
+		return nil
+	}
+	return []DataRef{*r}
+}
+
+func orNone(s string) string {
+	if s == "" {
+		return "none recorded"
+	}
+	return s
+}
+
+// sameJSON says whether a and b encode alike.
+func sameJSON(a, b any) bool {
+	x, err1 := json.Marshal(a)
+	y, err2 := json.Marshal(b)
+	return err1 == nil && err2 == nil && string(x) == string(y)
 }

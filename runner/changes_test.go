@@ -139,3 +139,55 @@ func TestChosenChangesSkipsParametersWithoutScale(t *testing.T) {
 		t.Errorf("got %q", lines)
 	}
 }
+
+// RecordChanges names every input file of run.json that changed (the data
+// file or each part, the new-rows file, each imputed set), and the
+// program, command line and time, and says nothing of what is the same or
+// what the earlier record did not hold.
+func TestRecordChangesNamesEachInput(t *testing.T) {
+	ref := func(file, h string) DataRef { return DataRef{File: file, SHA256: h} }
+	base := func() *RunRecord {
+		return &RunRecord{Version: "1", Plan: PlanRef{SHA256: "p"}, Seed: 1, GoVersion: "go1", Platform: "linux/amd64", Command: "ordplan run a.yaml",
+			Data:    &DataRef{SHA256: "d", Parts: []DataRef{ref("p1.csv", "1"), ref("p2.csv", "2")}},
+			NewRows: &DataRef{File: "nr.csv", SHA256: "n"}, Imputed: []DataRef{ref("i1.csv", "a"), ref("i2.csv", "b")}}
+	}
+	cases := []struct {
+		name string
+		edit func(r *RunRecord)
+		want string
+	}{
+		{"same", func(*RunRecord) {}, ""},
+		{"a part", func(r *RunRecord) { r.Data.SHA256, r.Data.Parts[1].SHA256 = "d2", "x" }, "the part p2.csv changed"},
+		{"a part added", func(r *RunRecord) {
+			r.Data.SHA256 = "d3"
+			r.Data.Parts = append(r.Data.Parts, ref("p3.csv", "3"))
+		}, "the part p3.csv is new"},
+		{"parts dropped", func(r *RunRecord) { r.Data.SHA256, r.Data.Parts = "d4", r.Data.Parts[:0] }, "the parts p1.csv and p2.csv are no longer read"},
+		{"parts in another order", func(r *RunRecord) {
+			r.Data.SHA256 = "d5"
+			r.Data.Parts[0], r.Data.Parts[1] = r.Data.Parts[1], r.Data.Parts[0]
+		}, "the parts are read in another order"},
+		{"a file for parts", func(r *RunRecord) { r.Data = &DataRef{File: "all.csv", SHA256: "w"} }, "the data changed from parts p1.csv, p2.csv to the file all.csv"},
+		{"new rows", func(r *RunRecord) { r.NewRows.SHA256 = "n2" }, "the new-rows file nr.csv changed"},
+		{"no new rows", func(r *RunRecord) { r.NewRows = nil }, "the new-rows file nr.csv is no longer read"},
+		{"an imputed set", func(r *RunRecord) { r.Imputed[0].SHA256 = "z" }, "the imputed set i1.csv changed"},
+		{"the program and command", func(r *RunRecord) { r.Version, r.Command = "2", "ordplan run a.yaml --previous x" },
+			"the program version changed (1 -> 2); the command line changed (ordplan run a.yaml -> ordplan run a.yaml --previous x)"},
+		{"the time", func(r *RunRecord) { r.Timestamp = "2026-12-04T00:00:00Z" }, "the time of the run, which report.timestamp writes into the outputs"},
+	}
+	for _, c := range cases {
+		now := base()
+		c.edit(now)
+		if got := strings.Join(RecordChanges(base(), now), "; "); got != c.want {
+			t.Errorf("%s: %q, want %q", c.name, got, c.want)
+		}
+	}
+	// A data file, by name; an earlier record without a command line (an
+	// older program's) is not said to differ in it.
+	was, now := base(), base()
+	was.Data, now.Data = &DataRef{File: "d.csv", SHA256: "1"}, &DataRef{File: "d.csv", SHA256: "2"}
+	was.Command = ""
+	if got := strings.Join(RecordChanges(was, now), "; "); got != "the data file d.csv changed" {
+		t.Errorf("data file: %q", got)
+	}
+}

@@ -1634,7 +1634,7 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{"report: O9-out/report.html"},
 			check: func(t *testing.T, dir, out, errs string) {
 				errs = strings.ReplaceAll(errs, dir+string(filepath.Separator), "")
-				for _, w := range []string{"ordplan run: output folder O9-out held an earlier run whose outputs differ from this run's (the plan changed and the data changed); kept them in O9-out/earlier/", " (--previous O9-out/earlier/"} {
+				for _, w := range []string{"ordplan run: output folder O9-out held an earlier run whose outputs differ from this run's (the plan changed and the data file d.csv changed); kept them in O9-out/earlier/", " (--previous O9-out/earlier/"} {
 					if !strings.Contains(errs, w) {
 						t.Errorf("want %q on stderr:\n%s", w, errs)
 					}

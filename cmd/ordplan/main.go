@@ -400,7 +400,7 @@ func (f *fitFlags) partFiles() ([]string, error) {
 			return nil, fmt.Errorf("--parts: the pattern %q matches no file (looked for %s)", file, where)
 		}
 	}
-	if twice := plan.PartsTwice(files, paths); len(twice) > 0 {
+	if twice := slices.Concat(plan.PartsTwice(files, paths), plan.PartsTwins(files, paths)); len(twice) > 0 {
 		return nil, fmt.Errorf("--parts: %s", twice[0])
 	}
 	return paths, nil

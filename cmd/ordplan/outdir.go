@@ -563,35 +563,18 @@ func keepEarlier(dir string, names []string) (string, error) {
 }
 
 // recordChange says what differs between the run.json kept in kept and
-// the new record: the plan, the data, the program (each by its SHA-256 or
-// version), or, when none of these, that the same inputs gave other
-// outputs.
+// this run's record (runner.RecordChanges: the plan, each input file by
+// name, the program, the command line, ...).
 func recordChange(kept string, record []byte) string {
 	was, _ := readRecord(filepath.Join(kept, recordFile))
 	var now runner.RunRecord
 	if was == nil || json.Unmarshal(record, &now) != nil {
 		return "its record could not be read"
 	}
-	dataHash := func(r *runner.RunRecord) string {
-		if r.Data == nil {
-			return ""
-		}
-		return r.Data.SHA256
+	if changed := runner.RecordChanges(was, &now); len(changed) > 0 {
+		return words.AndList(changed)
 	}
-	var changed []string
-	if was.Plan.SHA256 != now.Plan.SHA256 {
-		changed = append(changed, "the plan changed")
-	}
-	if dataHash(was) != dataHash(&now) {
-		changed = append(changed, "the data changed")
-	}
-	if was.Version != now.Version {
-		changed = append(changed, "the program changed ("+was.Version+" -> "+now.Version+")")
-	}
-	if len(changed) == 0 {
-		return "same plan, data and program version: another build of the program, command line or environment"
-	}
-	return words.AndList(changed)
+	return "nothing its run.json records differs: the plan, every input file, the program's build and the command line are the same"
 }
 
 // folderRecords reads the run records an output folder holds: its
