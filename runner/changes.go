@@ -194,7 +194,7 @@ func verdictPhrase(v Verdict) string {
 // RecordChanges says what differs between the records (run.json) of an
 // earlier run and of this one, in the order of the record: the plan, each
 // input file it lists (the data file or each part, the new-rows file,
-// each imputed set) by name, the plan's registration, the seed, the
+// each imputed set) by name, the plan's registration, the
 // program (version, build, Go version, system), the command line and the
 // time written into the outputs. What the earlier record does not hold
 // (written by an older program) is not compared. Nothing when every
@@ -207,11 +207,8 @@ func RecordChanges(was, now *RunRecord) []string {
 	out = append(out, dataRefChanges(was.Data, now.Data)...)
 	out = append(out, fileChanges("the new-rows file", refList(was.NewRows), refList(now.NewRows))...)
 	out = append(out, fileChanges("the imputed set", was.Imputed, now.Imputed)...)
-	if !sameJSON(was.Registration, now.Registration) {
+	if was.Registration != nil && !sameJSON(was.Registration, now.Registration) {
 		out = append(out, "the plan's registration (its comparison with the lock file) changed")
-	}
-	if was.Seed != now.Seed {
-		out = append(out, fmt.Sprintf("the seed changed (%d -> %d)", was.Seed, now.Seed))
 	}
 	for _, c := range []struct{ what, was, now string }{
 		{"the program version", was.Version, now.Version},

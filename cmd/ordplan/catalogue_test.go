@@ -326,7 +326,7 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		"bad.parquet": []byte("PAR1garbagegarbagePAR1"), "notpq.parquet": []byte(csv), "dates.parquet": datesParquet(t),
 		"formula.xlsx": formulaWorkbook(t), "shown.xlsx": shownWorkbook(t), "bomb.xlsx": claimingWorkbook(t),
 		"book.xlsx":    toWorkbook(t, []byte(strings.ReplaceAll(csv, "safety", "y"))),
-		"parts/p1.csv": []byte(csv), "parts/p2.csv": []byte(csv), "otherpart.csv": []byte("y,a,z\n1,0.5,1\n"),
+		"parts/p1.csv": []byte(csv), "parts/p2.csv": []byte(strings.SplitAfter(csv, "\n")[0] + strings.Join(reversed(rows), "\n") + "\n"), "otherpart.csv": []byte("y,a,z\n1,0.5,1\n"),
 		"emptypart.csv": []byte(strings.SplitAfter(csv, "\n")[0]),
 		"new.csv":       []byte("a,b\n0.5,1\n-1,0\n"), "short.key": []byte("short\n"), "queue.key": []byte("a shared secret of the catalogue's queue\n"), "precious.txt": []byte("keep me\n"),
 	}
@@ -1126,6 +1126,29 @@ func catalogue(dir string) (items []badInput) {
 		{id: "X12", name: "ordplan fit --parts: a part given by a pattern and by name", args: []string{"fit", "--outcome", "y", "--predictors", "a", "--parts", "parts/*.csv,parts/p2.csv"}, code: 1,
 			setup: inDataFolder,
 			want:  []string{`ordplan: --parts: the part "parts/p2.csv" comes twice from the list (a pattern and a name, or two patterns, both give it); every part is read once`}},
+		{id: "X26", name: "data.parts: a pattern that gives a file and a symbolic link to it", args: []string{"run"}, plan: edit("file: d.csv", "parts: [links/exports/*.csv]"), code: 1,
+			setup: twinFiles,
+			want:  []string{`X26.yaml:3:10: data.parts: the parts "links/exports/2024-02.csv" and "links/exports/latest.csv" are one file ("links/exports/latest.csv" is a symbolic link to "links/exports/2024-02.csv"), so the same rows would be read twice; every part is read once: leave one of them out (name the parts one by one, or give a pattern that matches only one of them)`},
+			check: func(t *testing.T, dir, out, errs string) {
+				if _, err := os.Stat(filepath.Join(dir, "X26-out")); err == nil {
+					t.Errorf("the refused run made its output folder")
+				}
+			}},
+		{id: "X26", name: "ordplan fit --parts: a file and a hard link to it", args: []string{"fit", "--outcome", "y", "--predictors", "a", "--parts", "links/2024-01.csv,links/hard.csv"}, code: 1,
+			setup: func(t *testing.T, dir, id string) { twinFiles(t, dir, id); t.Chdir(dir) },
+			want:  []string{`ordplan: --parts: the parts "links/2024-01.csv" and "links/hard.csv" are one file (a hard link, or another path to the same file), so the same rows would be read twice; every part is read once: leave one of them out`}},
+		{id: "X26", name: "data.imputed.files: an imputed set and a symbolic link to it", args: []string{"check"}, setup: twinFiles,
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {files: [links/imp1.csv, links/imp2.csv, links/imp3.csv]}\n"), code: 1,
+			want: []string{`X26.yaml:4:20: data.imputed.files: imputed sets 1 and 3 ("links/imp1.csv" and "links/imp3.csv") are one file ("links/imp3.csv" is a symbolic link to "links/imp1.csv"): one set counted twice understates the variance between the imputed sets, so intervals come out too narrow and tests reject too often; list each imputed set once (a copy of a set is no new draw: each set needs its own draws of the missing values)`}},
+		{id: "X27", name: "data.parts: a part and a copy of it under another name", args: []string{"check"}, plan: edit("file: d.csv", "parts: [parts/p1.csv, parts/p2.csv, links/copy.csv]"), code: 1,
+			setup: twinFiles,
+			want:  []string{`X27.yaml:3:10: data.parts: the parts "parts/p1.csv" and "links/copy.csv" hold the same bytes (sha256 `, `), so the same rows would be read twice; every part is read once: leave one of them out (name the parts one by one, or give a pattern that matches only one of them)`}},
+		{id: "X27", name: "ordplan fit --parts: a part and a copy of it", args: []string{"fit", "--outcome", "y", "--predictors", "a", "--parts", "links/copy.csv,parts/*.csv"}, code: 1,
+			setup: func(t *testing.T, dir, id string) { twinFiles(t, dir, id); t.Chdir(dir) },
+			want:  []string{`ordplan: --parts: the parts "links/copy.csv" and "parts/p1.csv" hold the same bytes (sha256 `}},
+		{id: "X27", name: "data.imputed.files: two imputed sets with the same bytes", args: []string{"run"}, setup: twinFiles,
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {files: [links/imp1.csv, links/imp2.csv, links/imp2copy.csv]}\n"), code: 1,
+			want: []string{`X27.yaml:4:20: data.imputed.files: imputed sets 2 and 3 ("links/imp2.csv" and "links/imp2copy.csv") hold the same bytes (sha256 `, `): one set counted twice understates the variance between the imputed sets`}},
 		{id: "X13", name: "data.parts: a part with a header and no rows", args: []string{"run"}, plan: edit("file: d.csv", "parts: [parts/p1.csv, emptypart.csv]"), code: 1,
 			want: []string{`emptypart.csv: no data rows after the header; every part needs rows (leave an empty part out of data.parts or --parts)`}},
 		{id: "X13", name: "ordplan fit --parts --queue: a part with a header and no rows (found before connecting)", args: []string{"fit", "--outcome", "y", "--predictors", "a", "--parts", "parts/p1.csv,emptypart.csv", "--queue", "nats://127.0.0.1:1", "--queue-secret-file", "queue.key"}, code: 1,
@@ -1749,6 +1772,46 @@ func withUsersFile(it badInput, folder, name, content string) badInput {
 // inDataFolder runs an item in the folder of the data files, as a user
 // types names relative to it.
 func inDataFolder(t *testing.T, dir, id string) { t.Chdir(dir) }
+
+// twinFiles writes links/ beside the plan: parts that are one file
+// (exports/2024-02.csv and exports/latest.csv, a symbolic link to it;
+// 2024-01.csv and hard.csv, a hard link), copy.csv with the bytes of
+// parts/p1.csv, and imputed sets imp1.csv, imp2.csv, imp3.csv (a link to
+// imp1.csv) and imp2copy.csv (a copy of imp2.csv), made from d.csv.
+func twinFiles(t *testing.T, dir, id string) {
+	t.Helper()
+	l := filepath.Join(dir, "links")
+	if _, err := os.Stat(l); err == nil {
+		return
+	}
+	os.MkdirAll(filepath.Join(l, "exports"), 0o755)
+	p1, err := os.ReadFile(filepath.Join(dir, "parts", "p1.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	p2, _ := os.ReadFile(filepath.Join(dir, "parts", "p2.csv"))
+	d, _ := os.ReadFile(filepath.Join(dir, "d.csv"))
+	crlf := bytes.ReplaceAll(d, []byte("\n"), []byte("\r\n"))
+	for name, b := range map[string][]byte{"exports/2024-01.csv": p1, "exports/2024-02.csv": p2, "2024-01.csv": p1, "copy.csv": p1,
+		"imp1.csv": d, "imp2.csv": crlf, "imp2copy.csv": crlf} {
+		if err := os.WriteFile(filepath.Join(l, name), b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	for _, err := range []error{os.Symlink("2024-02.csv", filepath.Join(l, "exports", "latest.csv")), os.Link(filepath.Join(l, "2024-01.csv"), filepath.Join(l, "hard.csv")),
+		os.Symlink("imp1.csv", filepath.Join(l, "imp3.csv"))} {
+		if err != nil {
+			t.Fatal(err)
+		}
+	}
+}
+
+// reversed is a copy of s in reverse order.
+func reversed(s []string) []string {
+	out := slices.Clone(s)
+	slices.Reverse(out)
+	return out
+}
 
 // withRecord adds to an item an ordplan run.json in folder, made by the
 // command, recording name with bytes other than any the item writes there.
