@@ -77,16 +77,20 @@ func (d *decoder) checkParts(p *Plan) ([]string, bool) {
 }
 
 // checkImputedTwins reports imputed sets of data.imputed.files that are
-// one file (a link, another path to it) or copies of one set's bytes
-// (data.Twins): Rubin's rules would count one set twice.
+// one file under two paths (a link; data.Twins): Rubin's rules would
+// count one set twice. Two files of the same bytes are not refused (sets
+// drawn apart may coincide where few values are missing): the run notes
+// them (runner.ImputedCopies).
 func (d *decoder) checkImputedTwins(p *Plan) {
 	im := p.Data.Imputed
 	if im == nil || len(im.Paths) < 2 || !d.clean("data.imputed.files") {
 		return
 	}
 	for _, t := range data.Twins(im.Paths) {
-		d.errAt("data.imputed.files", "imputed sets %d and %d (%s and %s) %s: one set counted twice understates the variance between the imputed sets, so intervals come out too narrow and tests reject too often; list each imputed set once (a copy of a set is no new draw: each set needs its own draws of the missing values)",
-			t.First+1, t.Second+1, strconv.Quote(im.Files[t.First]), strconv.Quote(im.Files[t.Second]), twinHow(t, im.Files))
+		if t.SameFile {
+			d.errAt("data.imputed.files", "imputed sets %d and %d (%s and %s) %s: one set counted twice understates the variance between the imputed sets, so intervals come out too narrow and tests reject too often; list each imputed set once",
+				t.First+1, t.Second+1, strconv.Quote(im.Files[t.First]), strconv.Quote(im.Files[t.Second]), twinHow(t, im.Files))
+		}
 	}
 }
 

@@ -850,6 +850,21 @@ func pinImputed(a *Analysis) ([]DataRef, func(), error) {
 	return refs, release, nil
 }
 
+// ImputedCopies notes the imputed files (data.imputed.files, their
+// references with hashes as run.json records them) that hold the same
+// bytes as an earlier set: sets drawn apart coincide only where few values are
+// missing, and a set copied twice understates the variance between the
+// sets. One note for each such set, naming the earlier one and the hash.
+func ImputedCopies(refs []DataRef) []string {
+	var out []string
+	for j, r := range refs {
+		if i := slices.IndexFunc(refs[:j], func(e DataRef) bool { return e.SHA256 == r.SHA256 }); i >= 0 {
+			out = append(out, fmt.Sprintf("Imputed sets %d and %d (%s and %s) hold the same bytes (sha256 %s): sets drawn apart coincide only where few values are missing; if one is a copy of the other, the variance between the imputed sets, and with it every pooled interval and test, is understated: give each set its own draws", i+1, j+1, refs[i].File, r.File, r.SHA256))
+		}
+	}
+	return out
+}
+
 // pooledLinear is the D1 test of a linear hypothesis in a pooled fit.
 // pooledContrasts estimates each restriction of hy on the pooled fit by
 // Rubin's rules, with t intervals on the Barnard-Rubin degrees of freedom.

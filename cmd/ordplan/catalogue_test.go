@@ -26,6 +26,8 @@ import (
 	"strings"
 	"testing"
 
+	"ordplan/runner/data"
+
 	"github.com/parquet-go/parquet-go"
 	"github.com/xuri/excelize/v2"
 )
@@ -1139,16 +1141,25 @@ func catalogue(dir string) (items []badInput) {
 			want:  []string{`ordplan: --parts: the parts "links/2024-01.csv" and "links/hard.csv" are one file (a hard link, or another path to the same file), so the same rows would be read twice; every part is read once: leave one of them out`}},
 		{id: "X26", name: "data.imputed.files: an imputed set and a symbolic link to it", args: []string{"check"}, setup: twinFiles,
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {files: [links/imp1.csv, links/imp2.csv, links/imp3.csv]}\n"), code: 1,
-			want: []string{`X26.yaml:4:20: data.imputed.files: imputed sets 1 and 3 ("links/imp1.csv" and "links/imp3.csv") are one file ("links/imp3.csv" is a symbolic link to "links/imp1.csv"): one set counted twice understates the variance between the imputed sets, so intervals come out too narrow and tests reject too often; list each imputed set once (a copy of a set is no new draw: each set needs its own draws of the missing values)`}},
+			want: []string{`X26.yaml:4:20: data.imputed.files: imputed sets 1 and 3 ("links/imp1.csv" and "links/imp3.csv") are one file ("links/imp3.csv" is a symbolic link to "links/imp1.csv"): one set counted twice understates the variance between the imputed sets, so intervals come out too narrow and tests reject too often; list each imputed set once`}},
 		{id: "X27", name: "data.parts: a part and a copy of it under another name", args: []string{"check"}, plan: edit("file: d.csv", "parts: [parts/p1.csv, parts/p2.csv, links/copy.csv]"), code: 1,
 			setup: twinFiles,
 			want:  []string{`X27.yaml:3:10: data.parts: the parts "parts/p1.csv" and "links/copy.csv" hold the same bytes (sha256 `, `), so the same rows would be read twice; every part is read once: leave one of them out (name the parts one by one, or give a pattern that matches only one of them)`}},
 		{id: "X27", name: "ordplan fit --parts: a part and a copy of it", args: []string{"fit", "--outcome", "y", "--predictors", "a", "--parts", "links/copy.csv,parts/*.csv"}, code: 1,
 			setup: func(t *testing.T, dir, id string) { twinFiles(t, dir, id); t.Chdir(dir) },
 			want:  []string{`ordplan: --parts: the parts "links/copy.csv" and "parts/p1.csv" hold the same bytes (sha256 `}},
-		{id: "X27", name: "data.imputed.files: two imputed sets with the same bytes", args: []string{"run"}, setup: twinFiles,
-			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {files: [links/imp1.csv, links/imp2.csv, links/imp2copy.csv]}\n"), code: 1,
-			want: []string{`X27.yaml:4:20: data.imputed.files: imputed sets 2 and 3 ("links/imp2.csv" and "links/imp2copy.csv") hold the same bytes (sha256 `, `): one set counted twice understates the variance between the imputed sets`}},
+		{id: "X27", name: "data.imputed.files: two imputed sets with the same bytes (noted, not refused)", args: []string{"run"}, setup: twinFiles,
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {files: [links/imp1.csv, links/imp2.csv, links/imp2copy.csv]}\n"), code: 0,
+			want: []string{"report: X27-out/report.html"},
+			check: func(t *testing.T, dir, out, errs string) {
+				note := `Imputed sets 2 and 3 (links/imp2.csv and links/imp2copy.csv) hold the same bytes (sha256 ` + data.HashBytes(imputedCopy(t, dir)) + `): sets drawn apart coincide only where few values are missing; if one is a copy of the other, the variance between the imputed sets, and with it every pooled interval and test, is understated: give each set its own draws`
+				if !strings.Contains(errs, "warning: "+filepath.Join(dir, "X27.yaml")+": "+note) {
+					t.Errorf("no warning on stderr:\n%s", errs)
+				}
+				if b, _ := os.ReadFile(filepath.Join(dir, "X27-out", "report.md")); !strings.Contains(string(b), note) {
+					t.Errorf("report.md lacks the note")
+				}
+			}},
 		{id: "X13", name: "data.parts: a part with a header and no rows", args: []string{"run"}, plan: edit("file: d.csv", "parts: [parts/p1.csv, emptypart.csv]"), code: 1,
 			want: []string{`emptypart.csv: no data rows after the header; every part needs rows (leave an empty part out of data.parts or --parts)`}},
 		{id: "X13", name: "ordplan fit --parts --queue: a part with a header and no rows (found before connecting)", args: []string{"fit", "--outcome", "y", "--predictors", "a", "--parts", "parts/p1.csv,emptypart.csv", "--queue", "nats://127.0.0.1:1", "--queue-secret-file", "queue.key"}, code: 1,
@@ -1804,6 +1815,15 @@ func twinFiles(t *testing.T, dir, id string) {
 			t.Fatal(err)
 		}
 	}
+}
+
+// imputedCopy is the bytes of twinFiles' imp2.csv and imp2copy.csv.
+func imputedCopy(t *testing.T, dir string) []byte {
+	b, err := os.ReadFile(filepath.Join(dir, "links", "imp2copy.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	return b
 }
 
 // reversed is a copy of s in reverse order.

@@ -296,7 +296,7 @@ func warnFound(p *plan.Plan, res *runner.Result, stderr io.Writer) {
 	for _, w := range runner.BinaryWarnings(p, found) {
 		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
 	}
-	for _, w := range runner.FewClustersWarnings(res) {
+	for _, w := range slices.Concat(runner.FewClustersWarnings(res), runner.ImputedCopies(res.Imputed)) {
 		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
 	}
 }
