@@ -16,15 +16,19 @@ func (d *decoder) applyDefaults(p *Plan) {
 			im.Paths = append(im.Paths, resolveDataPath(p.Dir, f))
 		}
 	}
+	p.Derived = map[string]string{}
 	for i := range p.Outcomes {
 		if p.Outcomes[i].Label == "" {
 			p.Outcomes[i].Label = p.Outcomes[i].Column
+			p.Derived[itemPath("outcomes", i)+".label"] = itemPath("outcomes", i) + ".column"
 		}
 	}
 	if !d.given("report.title") {
 		p.Report.Title = p.Title
+		p.Derived["report.title"] = "title"
 	}
 	if p.Report.FocusPredictor == "" && !d.given("report.focus_predictor") && len(p.Predictors) > 0 {
+		p.Derived["report.focus_predictor"] = "predictors"
 		p.Report.FocusPredictor = p.Predictors[0]
 		// the first numeric column a term reads, else the first column
 		for _, t := range p.Terms {
@@ -37,10 +41,12 @@ func (d *decoder) applyDefaults(p *Plan) {
 	for i := range p.Rules {
 		if p.Rules[i].Kind == RuleRejectIfTestRejects && p.Rules[i].Alpha == 0 {
 			p.Rules[i].Alpha = p.Tests.Alpha
+			p.Derived[itemPath("rules", i)+"."+RuleRejectIfTestRejects+".alpha"] = "tests.alpha"
 		}
 	}
 	pa := &p.Models.Partial
 	if p.Models.HasEffects(fit.ConstrainedEffects) && pa.Free != nil && !d.given("models.partial.groups") {
 		pa.Groups = []Group{{Name: "", Predictors: append([]string(nil), pa.Free...)}}
+		p.Derived["models.partial.groups"] = "models.partial.free"
 	}
 }

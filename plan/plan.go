@@ -43,6 +43,11 @@ type Plan struct {
 	// guesses to confirm, placeholders to replace. Not in the canonical
 	// form; freeze refuses a plan that has any, check and run warn.
 	Unedited []*Error
+	// Derived are the keys of the canonical form that the plan does not
+	// write, whose value is taken from a key it does (report.title from
+	// title): key -> the key it follows. A change of one that comes with
+	// a change of the key it follows is that key's change (lock.Compare).
+	Derived map[string]string
 }
 
 // Data says where the observations are and how to read them.

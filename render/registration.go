@@ -95,7 +95,10 @@ func writeLockStatus(d *doc, st *lock.Status, version string, w lockWords, earli
 	rows := make([][]string, 0, len(st.Changes))
 	for _, c := range st.Changes {
 		reason := c.Reason
-		if reason == "" {
+		switch {
+		case c.Follows != "":
+			reason = c.ReasonText("no stated reason")
+		case reason == "":
 			reason = md("**no stated reason**")
 		}
 		rows = append(rows, []string{md(mdCode(c.Path)), md(codeCell(c.From)), md(codeCell(c.To)), reason})

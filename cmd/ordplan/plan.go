@@ -51,11 +51,7 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 	}
 	fmt.Fprintln(stdout, registrationLine(st))
 	for _, c := range st.Changes {
-		reason := c.Reason
-		if reason == "" {
-			reason = "NO STATED REASON"
-		}
-		fmt.Fprintf(stdout, "  %s: %s -> %s (%s)\n", c.Path, c.From, c.To, reason)
+		fmt.Fprintf(stdout, "  %s: %s -> %s (%s)\n", c.Path, c.From, c.To, c.ReasonText("NO STATED REASON"))
 	}
 	for _, dv := range st.Unused {
 		fmt.Fprintf(stdout, "note: %s\n", st.UnusedNote(dv))

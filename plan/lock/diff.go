@@ -14,6 +14,10 @@ type Change struct {
 	Path string `json:"key"`  // key path, as in plan messages: "rules[2].choose.by"
 	From string `json:"from"` // JSON text of the frozen value, or "(absent)"
 	To   string `json:"to"`   // JSON text of the current value, or "(absent)"
+	// Follows is, for a key the plan does not write whose value it takes
+	// from another key that changed too (report.title from title), that
+	// key: the change is part of that key's, whose reason it takes.
+	Follows string `json:"follows,omitempty"`
 }
 
 // Absent marks a key that one side does not have.

@@ -314,3 +314,55 @@ func TestRemovedAndInsertedRules(t *testing.T) {
 		}
 	}
 }
+
+// A key the plan does not write that takes its value from another
+// (report.title from title, an outcome's label from its column) changes
+// with it: it takes that key's reason, is listed as following it, and is
+// no change of its own to explain; the message names only the key the
+// plan writes. Written in the plan, it is a change of its own.
+func TestDerivedKeyFollowsItsKey(t *testing.T) {
+	base := "title: first\n" + basePlan
+	changed := strings.Replace(base, "title: first", "title: second", 1)
+	changed = strings.Replace(changed, "column: y", "column: y2", 1)
+	freeze := func(src string) (*plan.Plan, string) {
+		dir := t.TempDir()
+		path := filepath.Join(dir, "p.yaml")
+		b, err := plan.Parse([]byte(base), path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if _, _, err := Write(New(b, "", frozenAt, "test"), path, false); err != nil {
+			t.Fatal(err)
+		}
+		p, err := plan.Parse([]byte(src), path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return p, path
+	}
+	p, _ := freeze(changed + "deviations:\n  - key: title\n    reason: a typo\n  - key: outcomes[0].column\n    reason: renamed\n")
+	st, err := Check(p, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var got []string
+	for _, c := range st.Changes {
+		got = append(got, c.Path+" ("+c.ReasonText("none")+")")
+	}
+	want := []string{"title (a typo)", "outcomes[0].column (renamed)", "outcomes[0].label (follows outcomes[0].column: renamed)", "report.title (follows title: a typo)"}
+	if st.State != StateDeviations || !slices.Equal(got, want) {
+		t.Fatalf("state %s, changes %q, want %q", st.State, got, want)
+	}
+	// No reason: the message lists the keys the plan writes, once each.
+	p, _ = freeze(changed)
+	_, err = Check(p, false)
+	if err == nil || !strings.Contains(err.Error(), "in 2 key(s) without a stated reason:\n  title: \"first\" -> \"second\"\n  outcomes[0].column: \"y\" -> \"y2\"\nstate the reason") {
+		t.Errorf("message: %v", err)
+	}
+	// report.title written in the plan: a change of its own.
+	p, _ = freeze(strings.Replace(base, "title: first", "title: second\nreport: {title: second}", 1) + "deviations:\n  - key: title\n    reason: a typo\n")
+	_, err = Check(p, false)
+	if err == nil || !strings.Contains(err.Error(), "in 1 key(s) without a stated reason:\n  report.title: \"first\" -> \"second\"\n") {
+		t.Errorf("report.title written: %v", err)
+	}
+}

@@ -6,6 +6,7 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 
 	"ordplan/internal/words"
@@ -39,11 +40,26 @@ type Explained struct {
 	Reason string `json:"reason"`
 }
 
-// Unexplained counts the changes without a stated reason.
+// ReasonText is the stated reason of a change as lists of changes show
+// it, saying first the key it follows (Follows): "follows title: WHY";
+// none gives the words for a change without a stated reason.
+func (e Explained) ReasonText(none string) string {
+	r := e.Reason
+	if r == "" {
+		r = none
+	}
+	if e.Follows != "" {
+		return "follows " + e.Follows + ": " + r
+	}
+	return r
+}
+
+// Unexplained counts the changes without a stated reason, but for those
+// that are part of another key's change (Follows), counted with it.
 func (s *Status) Unexplained() int {
 	n := 0
 	for _, c := range s.Changes {
-		if c.Reason == "" {
+		if c.Reason == "" && c.Follows == "" {
 			n++
 		}
 	}
@@ -70,11 +86,12 @@ func Compare(p *plan.Plan, f *File) (*Status, error) {
 	for _, c := range changes {
 		e := Explained{Change: c}
 		// The most specific stated key wins.
-		best := -1
-		for i, dv := range p.Deviations {
-			if dv.Covers(c.Path) && (best < 0 || len(dv.Key) > len(p.Deviations[best].Key)) {
-				best = i
-			}
+		best := stated(p.Deviations, c.Path)
+		if src, ok := p.Derived[c.Path]; ok && best < 0 && changedAt(changes, src) {
+			// A key the plan does not write, changed with the key it
+			// follows: that key's change, with its reason.
+			e.Follows = src
+			best = stated(p.Deviations, src)
 		}
 		if best >= 0 {
 			e.Reason = p.Deviations[best].Reason
@@ -92,6 +109,25 @@ func Compare(p *plan.Plan, f *File) (*Status, error) {
 		st.State = StateUnexplained
 	}
 	return st, nil
+}
+
+// stated is the index of the most specific deviation covering the key
+// path, or -1.
+func stated(devs []plan.Deviation, path string) int {
+	best := -1
+	for i, dv := range devs {
+		if dv.Covers(path) && (best < 0 || len(dv.Key) > len(devs[best].Key)) {
+			best = i
+		}
+	}
+	return best
+}
+
+// changedAt says whether a change is at key or below it.
+func changedAt(changes []Change, key string) bool {
+	return slices.ContainsFunc(changes, func(c Change) bool {
+		return plan.Deviation{Key: key}.Covers(c.Path)
+	})
 }
 
 // Check finds the lock beside the plan and compares. Changes without a
@@ -166,7 +202,7 @@ func (e *UnexplainedError) Error() string {
 	fmt.Fprintf(&b, "%s: the plan departs from its registered form (%s, frozen %s) in %d key(s) without a stated reason:",
 		e.Plan, filepath.Base(e.Lock), e.Status.Lock.FrozenAt, n)
 	for _, c := range e.Status.Changes {
-		if c.Reason == "" {
+		if c.Reason == "" && c.Follows == "" {
 			fmt.Fprintf(&b, "\n  %s: %s -> %s", c.Path, c.From, c.To)
 		}
 	}
