@@ -33,6 +33,8 @@ type interruptWatch struct {
 	command, dir string
 	hadRecord    bool // the folder held an earlier run's outputs (a run.json) when claimed
 	stderr       io.Writer
+	release      func() // releases the folder's lock, leaving nothing of it (outputLock.removeLock)
+	madeFolder   bool   // the command made the folder (release removes it while empty)
 
 	signals chan os.Signal
 	ended   chan struct{}
@@ -61,9 +63,10 @@ var stopOnInterrupt = func(s os.Signal) {
 
 // watchInterrupts starts the watch for command (run, rehearse, power)
 // over the output folder dir; hadRecord tells whether dir held an earlier
-// run's outputs.
-func watchInterrupts(command, dir string, hadRecord bool, stderr io.Writer) *interruptWatch {
-	w := &interruptWatch{command: command, dir: dir, hadRecord: hadRecord, stderr: stderr,
+// run's outputs; release, called before an interrupt stops the command,
+// releases the folder's lock.
+func watchInterrupts(command, dir string, hadRecord bool, stderr io.Writer, release func()) *interruptWatch {
+	w := &interruptWatch{command: command, dir: dir, hadRecord: hadRecord, stderr: stderr, release: release,
 		signals: make(chan os.Signal, 1), ended: make(chan struct{})}
 	signal.Notify(w.signals, os.Interrupt, syscall.SIGTERM)
 	w.done.Add(1)
@@ -95,6 +98,9 @@ func (w *interruptWatch) watch() {
 // The caller holds w.mu, so that the stage cannot change meanwhile.
 func (w *interruptWatch) stop(s os.Signal) {
 	fmt.Fprintln(w.stderr, w.message(s))
+	if w.release != nil {
+		w.release()
+	}
 	stopOnInterrupt(s)
 }
 
@@ -113,6 +119,9 @@ func (w *interruptWatch) message(s os.Signal) string {
 	case beforeWrite:
 		if w.hadRecord {
 			return fmt.Sprintf("%s before writing its outputs; output folder %s: unchanged, it holds the earlier run's outputs as they were", head, w.dir)
+		}
+		if w.madeFolder {
+			return fmt.Sprintf("%s before writing its outputs; output folder %s: no output was written, and the folder, which it made, is removed again", head, w.dir)
 		}
 		return fmt.Sprintf("%s before writing its outputs; output folder %s: no output was written there", head, w.dir)
 	case writeFailed:

@@ -4,8 +4,10 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -13,6 +15,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"sync"
 
 	"ordplan/internal/words"
 	"ordplan/runner"
@@ -26,56 +29,131 @@ const lockFile = ".ordplan.lock"
 type outputLock struct {
 	f *os.File
 	w *interruptWatch
+	// path is the lock file's; made the folders lockOutput made for the
+	// output folder, deepest first: released, the lock leaves neither
+	// (release).
+	path    string
+	made    []string
+	release sync.Once
 }
 
 // lockOutput creates the output folder if needed and takes its lock, so
 // that one run at a time writes there. The lock is released by Unlock or
 // when the process ends (however it ends); a second run meanwhile is
 // refused with a message naming the holder.
+//
+// The lock file is removed when the lock is released, by its holder
+// while it holds it; so a lock taken on a file that is no longer the one
+// at its path (removed by the run that held it meanwhile) is no lock, and
+// is taken again on the file now there.
 func lockOutput(dir string) (*outputLock, error) {
 	if fi, err := os.Stat(dir); err == nil && !fi.IsDir() {
 		return nil, fmt.Errorf("output folder %s: exists and is not a folder", dir)
 	}
-	if err := os.MkdirAll(dir, 0o755); err != nil {
-		return nil, fmt.Errorf("output folder: %w", err)
-	}
 	path := filepath.Join(dir, lockFile)
-	f, err := os.OpenFile(path, os.O_RDWR|os.O_CREATE|openNoFollow, 0o644)
-	if err != nil {
-		return nil, fmt.Errorf("output folder %s: cannot open its lock file %s: %w", dir, lockFile, err)
-	}
-	if busy, err := tryLock(f); err != nil {
-		holder := ""
-		if b, rerr := os.ReadFile(path); rerr == nil && len(b) > 0 {
-			holder = " (held by " + strings.TrimSpace(string(b)) + ")"
+	var made []string
+	for attempt := 0; ; attempt++ {
+		m, err := mkdirAllMade(dir)
+		if err != nil {
+			return nil, fmt.Errorf("output folder: %w", err)
 		}
-		f.Close()
-		if busy {
-			return nil, fmt.Errorf("output folder %s: another ordplan run is writing there%s; wait for it to finish or give another --out", dir, holder)
+		for _, d := range m {
+			if !slices.Contains(made, d) {
+				made = append(made, d)
+			}
 		}
-		return nil, fmt.Errorf("output folder %s: cannot lock %s: %v", dir, lockFile, err)
+		slices.SortFunc(made, func(a, b string) int { return len(b) - len(a) }) // deepest first
+		f, err := os.OpenFile(path, os.O_RDWR|os.O_CREATE|openNoFollow, 0o644)
+		if errors.Is(err, fs.ErrNotExist) && attempt < 10 {
+			continue // the folder was removed by a run that made it and has ended
+		}
+		if err != nil {
+			return nil, fmt.Errorf("output folder %s: cannot open its lock file %s: %w", dir, lockFile, err)
+		}
+		if busy, err := tryLock(f); err != nil {
+			holder := ""
+			if b, rerr := os.ReadFile(path); rerr == nil && len(b) > 0 {
+				holder = " (held by " + strings.TrimSpace(string(b)) + ")"
+			}
+			f.Close()
+			if busy {
+				return nil, fmt.Errorf("output folder %s: another ordplan run is writing there%s; wait for it to finish or give another --out", dir, holder)
+			}
+			return nil, fmt.Errorf("output folder %s: cannot lock %s: %v", dir, lockFile, err)
+		}
+		if !isFileAt(f, path) && attempt < 10 {
+			unlockFile(f)
+			f.Close()
+			continue
+		}
+		host, _ := os.Hostname()
+		f.Truncate(0)
+		f.WriteAt([]byte("process "+strconv.Itoa(os.Getpid())+" on "+host+"\n"), 0)
+		return &outputLock{f: f, path: path, made: made}, nil
 	}
-	host, _ := os.Hostname()
-	f.Truncate(0)
-	f.WriteAt([]byte("process "+strconv.Itoa(os.Getpid())+" on "+host+"\n"), 0)
-	return &outputLock{f: f}, nil
+}
+
+// mkdirAllMade makes the folder dir and those above it that do not
+// exist, and lists those it made, deepest first.
+func mkdirAllMade(dir string) ([]string, error) {
+	var made []string
+	for d := filepath.Clean(dir); ; d = filepath.Dir(d) {
+		if _, err := os.Lstat(d); err == nil {
+			break
+		}
+		made = append(made, d)
+		if filepath.Dir(d) == d {
+			break
+		}
+	}
+	if err := os.MkdirAll(dir, 0o755); err != nil {
+		return nil, err
+	}
+	return made, nil
+}
+
+// isFileAt says whether the open file f is the file at path.
+func isFileAt(f *os.File, path string) bool {
+	a, err1 := f.Stat()
+	b, err2 := os.Lstat(path)
+	return err1 == nil && err2 == nil && os.SameFile(a, b)
 }
 
 // Unlock ends the watch on interrupts (delivering one held since a failed
-// write) and releases the lock. The lock file is emptied first: the
-// holder's process id and host name are for a run that is still writing,
-// and a finished folder holds the same bytes whoever ran it.
+// write) and releases the lock, leaving in the folder nothing of it
+// (removeLock).
 func (l *outputLock) Unlock() {
 	if l != nil && l.w != nil {
 		l.w.end()
 		l.w = nil
 	}
-	if l != nil && l.f != nil {
-		l.f.Truncate(0)
+	l.removeLock()
+}
+
+// removeLock releases the lock and removes what the lock left: its file
+// (removed while held, so that no other run takes a lock on it: see
+// lockOutput) and the folders lockOutput made that are still empty (a
+// refused or failed run into a new folder leaves none). Once; an
+// interrupt that stops the command calls it too.
+func (l *outputLock) removeLock() {
+	if l == nil {
+		return
+	}
+	l.release.Do(func() {
+		if l.f == nil {
+			return
+		}
+		if isFileAt(l.f, l.path) {
+			os.Remove(l.path)
+		}
 		unlockFile(l.f)
 		l.f.Close()
-		l.f = nil
-	}
+		for _, d := range l.made {
+			if os.Remove(d) != nil {
+				break // not empty: the outputs, or another run's lock
+			}
+		}
+	})
 }
 
 // afterTemp, when set (by tests), is called after each temporary file is
@@ -180,7 +258,8 @@ func claimOutput(dir, command string, fixed []string, stderr io.Writer) (*output
 		return nil, usersFilesError(dir, mine)
 	}
 	prev, _ := previousRecord(dir)
-	lock.w = watchInterrupts(command, dir, prev != nil, stderr)
+	lock.w = watchInterrupts(command, dir, prev != nil, stderr, lock.removeLock)
+	lock.w.madeFolder = len(lock.made) > 0
 	return lock, nil
 }
 
@@ -238,17 +317,15 @@ func writeOutputs(lock *outputLock, dir string, files map[string][]byte, record 
 	stale := staleOutputs(dir, all)
 	replaced := replacedOutputs(dir, all)
 	return lock.commit(func() error {
-		kept := ""
+		kept, unkeep := "", func() {}
 		if len(replaced) > 0 {
 			var err error
-			if kept, err = keepEarlier(dir, replaced); err != nil {
+			if kept, unkeep, err = keepEarlier(dir, replaced); err != nil {
 				return err
 			}
 		}
 		if err := writeFiles(dir, names, all); err != nil {
-			if kept != "" {
-				os.RemoveAll(kept) // the earlier run is still in place
-			}
+			unkeep() // the earlier run is still in place
 			return err
 		}
 		if kept != "" && lock != nil && lock.w != nil {
@@ -518,11 +595,20 @@ func replacedOutputs(dir string, all map[string][]byte) []string {
 // dir/earlier/TIME, TIME the UTC time its run.json was written
 // (20261203T183114Z, with -2, -3 ... when taken): linked where the file
 // system allows, else copied, into a temporary folder renamed into place
-// once complete. It returns the folder's path.
-func keepEarlier(dir string, names []string) (string, error) {
+// once complete. It returns the folder's path, and undo, which removes
+// it again with the folder earlier/ when it made that (a failed write
+// leaves the output folder as it was).
+func keepEarlier(dir string, names []string) (string, func(), error) {
 	base := filepath.Join(dir, earlierFolder)
+	_, err := os.Lstat(base)
+	madeBase := err != nil
+	removeBase := func() {
+		if madeBase {
+			os.Remove(base)
+		}
+	}
 	if err := os.MkdirAll(base, 0o755); err != nil {
-		return "", fmt.Errorf("output folder %s: cannot keep the earlier run's outputs in %s: %w", dir, base, err)
+		return "", nil, fmt.Errorf("output folder %s: cannot keep the earlier run's outputs in %s: %w", dir, base, err)
 	}
 	stamp := "earlier-run"
 	if fi, err := os.Stat(filepath.Join(dir, recordFile)); err == nil {
@@ -530,7 +616,8 @@ func keepEarlier(dir string, names []string) (string, error) {
 	}
 	tmp, err := os.MkdirTemp(base, "."+stamp+".tmp-")
 	if err != nil {
-		return "", fmt.Errorf("output folder %s: cannot keep the earlier run's outputs in %s: %w", dir, base, err)
+		removeBase()
+		return "", nil, fmt.Errorf("output folder %s: cannot keep the earlier run's outputs in %s: %w", dir, base, err)
 	}
 	for _, n := range names {
 		src, dst := filepath.Join(dir, n), filepath.Join(tmp, n)
@@ -543,7 +630,8 @@ func keepEarlier(dir string, names []string) (string, error) {
 		}
 		if err != nil {
 			os.RemoveAll(tmp)
-			return "", fmt.Errorf("output folder %s: cannot keep the earlier run's %s in %s: %w", dir, n, base, err)
+			removeBase()
+			return "", nil, fmt.Errorf("output folder %s: cannot keep the earlier run's %s in %s: %w", dir, n, base, err)
 		}
 	}
 	for i := 1; ; i++ {
@@ -556,9 +644,10 @@ func keepEarlier(dir string, names []string) (string, error) {
 		}
 		if err := os.Rename(tmp, kept); err != nil {
 			os.RemoveAll(tmp)
-			return "", fmt.Errorf("output folder %s: cannot keep the earlier run's outputs in %s: %w", dir, kept, err)
+			removeBase()
+			return "", nil, fmt.Errorf("output folder %s: cannot keep the earlier run's outputs in %s: %w", dir, kept, err)
 		}
-		return kept, nil
+		return kept, func() { os.RemoveAll(kept); removeBase() }, nil
 	}
 }
 

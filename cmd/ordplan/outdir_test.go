@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"io"
 	"os"
 	"os/signal"
@@ -63,16 +64,46 @@ func TestLockOutput(t *testing.T) {
 		t.Errorf("a held lock names its holder: %q", b)
 	}
 	l1.Unlock()
+	// Released, the lock leaves nothing: neither its file nor the folder
+	// (and the one above it) it made, empty.
+	if _, err := os.Lstat(filepath.Dir(dir)); err != nil {
+		t.Fatal(err)
+	}
+	os.Remove(filepath.Dir(dir))
 	l2, err := lockOutput(dir)
 	if err != nil {
 		t.Fatal(err)
 	}
 	l2.Unlock()
-	// A released lock is empty: two runs leave the same bytes, whatever
-	// host and process wrote them.
-	if b, err := os.ReadFile(filepath.Join(dir, lockFile)); err != nil || len(b) != 0 {
-		t.Errorf("a released lock holds %q (%v), want nothing", b, err)
+	if _, err := os.Lstat(filepath.Dir(dir)); err == nil {
+		t.Errorf("a released lock left the folders it made")
 	}
+	// A folder that existed keeps everything but the lock file; a folder
+	// it made that now holds files stays.
+	dir = t.TempDir()
+	out := filepath.Join(dir, "new", "out")
+	l3, err := lockOutput(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	os.WriteFile(filepath.Join(out, "report.md"), []byte("x"), 0o644)
+	l3.Unlock()
+	if names, _ := os.ReadDir(out); len(names) != 1 || names[0].Name() != "report.md" {
+		t.Errorf("the folder holds %v after the lock is released", names)
+	}
+	// A lock taken on a lock file that its holder removed meanwhile is
+	// taken again on the file now at the path.
+	old, _ := os.OpenFile(filepath.Join(out, lockFile), os.O_RDWR|os.O_CREATE, 0o644)
+	os.Remove(filepath.Join(out, lockFile))
+	if isFileAt(old, filepath.Join(out, lockFile)) {
+		t.Errorf("a removed lock file is still at its path")
+	}
+	old.Close()
+	l4, err := lockOutput(out)
+	if err != nil || !isFileAt(l4.f, filepath.Join(out, lockFile)) {
+		t.Fatalf("lock after a removed lock file: %v", err)
+	}
+	l4.Unlock()
 	f := filepath.Join(t.TempDir(), "file")
 	os.WriteFile(f, nil, 0o644)
 	if _, err := lockOutput(f); err == nil || !strings.Contains(err.Error(), "not a folder") {
@@ -316,11 +347,11 @@ func TestInterruptMessages(t *testing.T) {
 		t.Fatal(err)
 	}
 	interruptSelf()
-	if msg, want := stoppedWith(t, stops, &stderr), "ordplan run: interrupted before writing its outputs; output folder "+dir+": no output was written there\n"; msg != want {
+	if msg, want := stoppedWith(t, stops, &stderr), "ordplan run: interrupted before writing its outputs; output folder "+dir+": no output was written, and the folder, which it made, is removed again\n"; msg != want {
 		t.Errorf("stderr %q, want %q", msg, want)
 	}
-	if names := folderNames(t, dir); len(names) != 0 {
-		t.Errorf("the folder holds %v", names)
+	if _, err := os.Lstat(dir); err == nil {
+		t.Errorf("the folder the command made is still there")
 	}
 	if err := writeOutputs(l, dir, files, testRecord); err != nil {
 		t.Fatal(err)
@@ -438,5 +469,50 @@ func TestReadRecordOneReader(t *testing.T) {
 			t.Errorf("%s: previousRecord %v %v, previousMaker %q %v, folderRecords %d; want outputs %v, foreign %v, maker %q %v, %d records",
 				c.name, out, foreign, maker, ok, len(got), c.outputs, c.foreign, c.maker, c.makerOK, c.inFolder)
 		}
+	}
+}
+
+// A run refused, or failing on its data, leaves in its output folder
+// nothing the user did not have: no lock file, and no folder it made
+// for --out.
+func TestRefusedRunLeavesNothing(t *testing.T) {
+	dir := t.TempDir()
+	var d strings.Builder
+	d.WriteString("y,a\n")
+	for i := range 40 {
+		fmt.Fprintf(&d, "%d,%d\n", i%3+1, i%7)
+	}
+	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(d.String()), 0o644)
+	os.WriteFile(filepath.Join(dir, "bad.csv"), []byte(d.String()+"2,abc\n"), 0o644)
+	plan := "version: 1\ndata: {file: %s}\noutcomes: [{column: y}]\npredictors: [a]\nmodels: {approaches: [cumulative], effects: [parallel]}\nrules: [{choose: {by: aic}}]\n"
+	os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(fmt.Sprintf(plan, "d.csv")), 0o644)
+	os.WriteFile(filepath.Join(dir, "bad.yaml"), []byte(fmt.Sprintf(plan, "bad.csv")), 0o644)
+	// The user's own report.md in the folder (O7).
+	users := filepath.Join(dir, "mine")
+	os.MkdirAll(users, 0o755)
+	os.WriteFile(filepath.Join(users, "report.md"), []byte("mine\n"), 0o644)
+	if _, errs, code := runCLI("run", filepath.Join(dir, "p.yaml"), "--out", users, "--quiet"); code != 1 || !strings.Contains(errs, "holds report.md but no run.json") {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if names, _ := os.ReadDir(users); len(names) != 1 || names[0].Name() != "report.md" {
+		t.Errorf("the user's folder holds %v", names)
+	}
+	// A bad data row, into a new folder two levels down.
+	out := filepath.Join(dir, "new", "out")
+	if _, errs, code := runCLI("run", filepath.Join(dir, "bad.yaml"), "--out", out, "--quiet"); code != 1 || !strings.Contains(errs, `value "abc" is not a number`) {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if _, err := os.Lstat(filepath.Join(dir, "new")); err == nil {
+		t.Errorf("the refused run left the folder it made")
+	}
+	// A run that writes its outputs leaves them, and no lock file.
+	if _, errs, code := runCLI("run", filepath.Join(dir, "p.yaml"), "--out", out, "--quiet"); code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if _, err := os.Lstat(filepath.Join(out, lockFile)); err == nil {
+		t.Errorf("the run left its lock file")
+	}
+	if _, err := os.Stat(filepath.Join(out, "report.md")); err != nil {
+		t.Errorf("no report: %v", err)
 	}
 }

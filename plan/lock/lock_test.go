@@ -36,9 +36,15 @@ var frozenAt = time.Date(2026, 12, 1, 9, 30, 0, 0, time.UTC)
 // it and returns the parsed current plan.
 func setup(t *testing.T, src string) (*plan.Plan, string) {
 	t.Helper()
+	return setupFrom(t, basePlan, src)
+}
+
+// setupFrom is setup with the frozen plan's text.
+func setupFrom(t *testing.T, frozen, src string) (*plan.Plan, string) {
+	t.Helper()
 	dir := t.TempDir()
 	path := filepath.Join(dir, "p.yaml")
-	base, err := plan.Parse([]byte(basePlan), path)
+	base, err := plan.Parse([]byte(frozen), path)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -324,22 +330,7 @@ func TestDerivedKeyFollowsItsKey(t *testing.T) {
 	base := "title: first\n" + basePlan
 	changed := strings.Replace(base, "title: first", "title: second", 1)
 	changed = strings.Replace(changed, "column: y", "column: y2", 1)
-	freeze := func(src string) (*plan.Plan, string) {
-		dir := t.TempDir()
-		path := filepath.Join(dir, "p.yaml")
-		b, err := plan.Parse([]byte(base), path)
-		if err != nil {
-			t.Fatal(err)
-		}
-		if _, _, err := Write(New(b, "", frozenAt, "test"), path, false); err != nil {
-			t.Fatal(err)
-		}
-		p, err := plan.Parse([]byte(src), path)
-		if err != nil {
-			t.Fatal(err)
-		}
-		return p, path
-	}
+	freeze := func(src string) (*plan.Plan, string) { return setupFrom(t, base, src) }
 	p, _ := freeze(changed + "deviations:\n  - key: title\n    reason: a typo\n  - key: outcomes[0].column\n    reason: renamed\n")
 	st, err := Check(p, false)
 	if err != nil {
