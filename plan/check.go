@@ -6,6 +6,7 @@ import (
 
 	"gopkg.in/yaml.v3"
 
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 
@@ -124,8 +125,10 @@ func (d *decoder) checkColumns(p *Plan) {
 	}
 }
 
-// checkDataOptions checks weights and clustering against covariance.
+// checkDataOptions checks weights and clustering against covariance, and
+// the workbook keys against the files.
 func (d *decoder) checkDataOptions(p *Plan) {
+	d.checkWorkbookKeys(p)
 	if p.Data.WeightKind == "sampling" && p.Data.Weights == "" && d.clean("data.weights") {
 		d.errAt("data.weight_kind", "sampling weights need a weights column, and data.weights is not set")
 	}
@@ -137,6 +140,36 @@ func (d *decoder) checkDataOptions(p *Plan) {
 	}
 	if p.FewClusters != fit.NoCorrection && p.Covariance != fit.Clustered && d.clean("covariance") {
 		d.errAt("few_clusters", "%s corrects clustered errors, but covariance is %s: set covariance: clustered with data.cluster naming the cluster column, or remove few_clusters", p.FewClusters, quote(p.Covariance.String()))
+	}
+}
+
+// checkWorkbookKeys refuses data.sheet and data.header_row in a plan
+// none of whose files (data.file or data.parts, data.imputed,
+// inference.predict) is an .xlsx workbook: read nowhere, they would leave
+// a title line above a CSV file's header, or a sheet meant for another
+// file, unnoticed (as ordplan fit refuses --sheet and --header-row).
+func (d *decoder) checkWorkbookKeys(p *Plan) {
+	files := append([]string{p.Data.File, p.Inference.Predict}, p.Data.Parts...)
+	if im := p.Data.Imputed; im != nil {
+		files = append(files, im.File)
+		files = append(files, im.Files...)
+	}
+	for _, f := range files {
+		if f != "" && data.IsWorkbook(f) {
+			return
+		}
+	}
+	what := "the data"
+	if p.Data.File != "" {
+		what = "the data file " + quote(p.Data.File)
+	}
+	for _, k := range []struct{ key, advice string }{
+		{"data.sheet", "remove the key"},
+		{"data.header_row", "a CSV file's header is its first line: remove the lines above it (a title) from the file, and the key"},
+	} {
+		if d.given(k.key) && d.clean(k.key) {
+			d.errAt(k.key, "applies to .xlsx workbooks, and no file of this plan is one (%s is not named *.xlsx): %s", what, k.advice)
+		}
 	}
 }
 

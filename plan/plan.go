@@ -63,7 +63,7 @@ type Data struct {
 	MissingValues               []string // nil = reader default; empty = nothing counts as missing
 	Delimiter                   string   // "comma" (default), "semicolon" or "tab"
 	Decimal                     string   // decimal mark: "point" (default) or "comma"
-	Sheet                       string   // .xlsx worksheet ("" = the first)
+	Sheet                       string   // .xlsx worksheet ("" = the one visible sheet with cells)
 	HeaderRow                   int      // .xlsx header row (0 = the first row)
 	Weights                     string   // column, optional
 	WeightKind                  string   // "frequency" (default) or "sampling"

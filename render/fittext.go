@@ -10,12 +10,16 @@ import (
 
 	"ordplan/render/numfmt"
 	"ordplan/runner"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 
 // DataSummary describes the rows behind a fit.
 type DataSummary struct {
-	File        string
+	File string
+	// Sheet: the worksheet of a workbook the rows come from (nil: not a
+	// workbook).
+	Sheet       *data.SheetRead
 	Outcome     string
 	RowsRead    int
 	RowsUsed    int
@@ -48,7 +52,14 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 	fmt.Fprintf(tw, "Model\t%s\n", r.Name)
 	fmt.Fprintf(tw, "Outcome\t%s: %s (%d categories)\n", ds.Outcome, strings.Join(r.Categories, " < "), r.J)
 	if ds.File != "" {
-		fmt.Fprintf(tw, "Data\t%s: %d rows read, %d used; %s\n", ds.File, ds.RowsRead, ds.RowsUsed, ds.DropSummary)
+		file, drop := ds.File, ds.DropSummary
+		if ds.Sheet != nil {
+			file += ", " + ds.Sheet.Where()
+			if n := ds.Sheet.HiddenRowsNote(); n != "" {
+				drop += "; " + n
+			}
+		}
+		fmt.Fprintf(tw, "Data\t%s: %d rows read, %d used; %s\n", file, ds.RowsRead, ds.RowsUsed, drop)
 	}
 	if ds.Sampling {
 		fmt.Fprintf(tw, "Observations\t%d rows; sampling weights, rescaled to sum to the rows (AIC and BIC descriptive only)\n", r.NRows)

@@ -56,6 +56,12 @@ func writeData(d *doc, or *runner.OutcomeResult, sampling bool, cluster string) 
 	if obs != "" {
 		obs = " " + obs
 	}
+	if s := ds.Sheet; s != nil {
+		obs += " The rows were read from the workbook's " + mdText(s.Where()) + "."
+		if n := s.HiddenRowsNote(); n != "" {
+			obs += " " + mdText(n) + "."
+		}
+	}
 	d.p("Outcome column %s, %d categories in this order: %s. %d rows read, %d used; %s.%s",
 		mdCode(or.Outcome.Column), len(ds.Categories), mdText(strings.Join(ds.Categories, " < ")), ds.RowsRead, ds.N, ds.DropSummary(), obs)
 	var rows [][]string

@@ -46,6 +46,12 @@ type DataRef struct {
 	// Parts are the files of data held as parts, each with its SHA-256;
 	// SHA256 is then the SHA-256 of their hex SHA-256s, one per line.
 	Parts []DataRef `json:"parts,omitempty"`
+	// Sheet names the worksheet of a workbook read, in run.json (absent
+	// for other files, and in decisions.json); SheetHidden says it is hidden (read because the plan names
+	// it), HiddenRows how many of the rows read the sheet hides from view.
+	Sheet       string `json:"sheet,omitempty"`
+	SheetHidden bool   `json:"sheet_hidden,omitempty"`
+	HiddenRows  int    `json:"hidden_rows_read,omitempty"`
 }
 
 // OutcomeDecisions is one outcome's part of decisions.json.
@@ -385,7 +391,7 @@ type RunRecord struct {
 // program, plan, data and seed, the SHA-256 of every output, and the
 // command that made them (madeBy: run or rehearse).
 func RunJSON(r *Result, madeBy string, files map[string][]byte) ([]byte, error) {
-	data := dataRef(r)
+	data := withSheet(dataRef(r), r)
 	rec := RunRecord{Program: "ordplan", Version: r.Version,
 		Plan: PlanRef{File: filepath.Base(r.Plan.Path), Title: r.Plan.Title, SHA256: r.Plan.Hash},
 		Data: &data, NewRows: newRowsRef(r), Imputed: r.Imputed, Seed: r.Plan.Seed}
@@ -438,4 +444,17 @@ func dataRef(r *Result) DataRef {
 		return DataRef{SHA256: r.DataHash, Parts: r.DataParts}
 	}
 	return DataRef{File: r.Plan.Data.File, SHA256: r.DataHash}
+}
+
+// withSheet is ref with the worksheet the rows were read from when the
+// data file is a workbook (run.json names it; decisions.json, the same
+// for the same data in any format, does not).
+func withSheet(ref DataRef, r *Result) DataRef {
+	for _, or := range r.Outcomes {
+		if ds := or.AsRead(); ds != nil && ds.Sheet != nil {
+			ref.Sheet, ref.SheetHidden, ref.HiddenRows = ds.Sheet.Name, ds.Sheet.Hidden, ds.Sheet.HiddenRows
+			break
+		}
+	}
+	return ref
 }

@@ -20,7 +20,7 @@ func cmdInit(args []string, stdout, stderr io.Writer) int {
 	dataFile := fs.String("data", "", "the data file (CSV text, an .xlsx workbook or a flat Parquet file): its columns are listed with the kind of values found")
 	delimiter := fs.String("delimiter", "", "the character between the CSV file's fields: comma, semicolon or tab (default: as the file's header shows)")
 	decimal := fs.String("decimal", "", "the decimal mark of the CSV file's numbers: point or comma (default: as the file's numbers show)")
-	sheet := fs.String("sheet", "", "for an .xlsx workbook: the worksheet to read (default: the first)")
+	sheet := fs.String("sheet", "", "for an .xlsx workbook: the worksheet to read, hidden or not (default: the one visible sheet with cells filled)")
 	headerRow := fs.Int("header-row", 1, "for an .xlsx workbook: the sheet row holding the column names")
 	header := fs.String("header", "", "the columns, comma separated, when there are no data yet")
 	outcome := fs.String("outcome", "", "the ordinal outcome column (default: guessed, marked EDIT)")
@@ -54,9 +54,14 @@ func cmdInit(args []string, stdout, stderr io.Writer) int {
 			}
 			d = data.DetectDialect(raw)
 		}
-		cols, err := data.ProfileFile(*dataFile, nil, d)
+		cols, read, err := data.ProfileSheet(*dataFile, nil, d)
 		if err != nil {
 			return fail(stderr, err)
+		}
+		if read != nil && read.Sheets > 1 {
+			// The sheet read, named in the plan: a sheet added later
+			// leaves the plan reading the same one.
+			d.Sheet = read.Name
 		}
 		in.Columns, in.HaveData = cols, true
 		in.Dialect, in.DialectFound = d, detected

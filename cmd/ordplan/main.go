@@ -188,7 +188,7 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 	for _, n := range ds.Notes {
 		drop += "; " + strings.TrimSuffix(n, ".")
 	}
-	sum := render.DataSummary{File: s.DataName(), Outcome: *f.outcome, RowsRead: ds.RowsRead, RowsUsed: ds.N, DropSummary: drop, Sampling: s.Sampling}
+	sum := render.DataSummary{File: s.DataName(), Sheet: ds.Sheet, Outcome: *f.outcome, RowsRead: ds.RowsRead, RowsUsed: ds.N, DropSummary: drop, Sampling: s.Sampling}
 	if w := s.FewClusters(ds); w != "" {
 		// In the table; on standard error beside JSON.
 		sum.Warnings = append(sum.Warnings, w)
@@ -244,7 +244,7 @@ func defineFitFlags(fs *flag.FlagSet) *fitFlags {
 		missingCodes: fs.String("missing-codes", "", "a column's own missing-value codes, as the plan's dictionary.COLUMN.missing: COLUMN=CODE/CODE, comma separated (a code that is a number also marks it written otherwise, -9.0 for -9); the usual markers (empty, NA, NaN, .) stay missing"),
 		delimiter:    fs.String("delimiter", "comma", "the character between the data file's fields: comma, semicolon or tab"),
 		decimal:      fs.String("decimal", "point", "the decimal mark of the data file's numbers: point (1.5) or comma (1,5)"),
-		sheet:        fs.String("sheet", "", "for an .xlsx workbook: the worksheet to read (default: the first)"),
+		sheet:        fs.String("sheet", "", "for an .xlsx workbook: the worksheet to read, hidden or not (default: the one visible sheet with cells filled)"),
 		headerRow:    fs.Int("header-row", 1, "for an .xlsx workbook: the sheet row holding the column names (rows above it are skipped)"),
 		baseline:     fs.String("baseline", "", "also show an adjacent nonparallel logit as baseline-category logits against this category"),
 		level:        fs.Float64("confidence-level", 0.95, "confidence level of the intervals"),

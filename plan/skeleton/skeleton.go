@@ -369,7 +369,7 @@ func writeDialect(w func(string, ...any), in Input) {
 		if d.Sheet != "" {
 			w("  sheet: %s", yamlString(d.Sheet))
 		} else {
-			w("  # sheet: NAME        # the worksheet to read (default: the first)")
+			w("  # sheet: NAME        # the worksheet to read (default: the one visible sheet with cells filled)")
 		}
 		w("  header_row: %-10d # the sheet row holding the column names", max(d.HeaderRow, 1))
 	default:

@@ -78,6 +78,9 @@ type Dataset struct {
 	// Notes are remarks of the steps after reading that the user must see
 	// (a declared level dropped because no row has it).
 	Notes []string
+	// Sheet names the worksheet of a workbook the rows come from, and
+	// what of it is hidden; nil for other files and for parts.
+	Sheet *SheetRead
 	// Parts are the files of a data set read as parts (LoadFiles), with
 	// the numbering of their lines in Lines; nil for one file.
 	Parts []PartSpan

@@ -14,7 +14,7 @@ import (
 type Dialect struct {
 	Delimiter    rune `json:"delimiter"`     // ',' (0 means ','), ';' or '\t'
 	DecimalComma bool `json:"decimal_comma"` // numbers are written 1,5 rather than 1.5
-	// Sheet names the worksheet of an .xlsx workbook ("" = the first);
+	// Sheet names the worksheet of an .xlsx workbook ("" = the one visible sheet with cells: chooseSheet);
 	// HeaderRow is the sheet row holding the column names (0 or 1 = the
 	// first row; rows above it, such as a title, are skipped).
 	Sheet     string `json:"sheet"`

@@ -113,8 +113,9 @@ func readXML(f *zip.File, v any) bool {
 }
 
 // scanFormulas finds the formula cells of a worksheet's XML without a
-// saved value (no <v> element; an empty one is a saved empty text), by the bytes: a sheet
-// without formulas costs one search.
+// saved value (no <v> element, or an empty one in a cell that is not of
+// type str: savedValue), by the bytes: a sheet without formulas costs one
+// search.
 func scanFormulas(x []byte) map[int]map[int]string {
 	root := bytes.Index(x, []byte("worksheet"))
 	lt := bytes.LastIndexByte(x[:max(root, 0)], '<')
@@ -141,12 +142,12 @@ func scanFormulas(x []byte) map[int]map[int]string {
 			return out
 		}
 		cell := x[i : at+e]
-		if hasValue(cell, openV) {
-			continue
-		}
 		tag := x[s:i]
 		if gt := bytes.IndexByte(tag, '>'); gt >= 0 {
 			tag = tag[:gt]
+		}
+		if t, _ := attr(tag[1:], "t"); savedValue(cell, openV, t == "str") {
+			continue
 		}
 		col, row, ok := cellRef(tag)
 		if !ok {
@@ -168,17 +169,35 @@ func scanFormulas(x []byte) map[int]map[int]string {
 	}
 }
 
-// hasValue reports whether a cell's XML (from its formula on) holds a <v>
-// element, the formula's saved result. An empty one (<v></v>, <v/>) is a
-// saved empty text, as a formula such as =IF(C2="","",C2) gives: the cell
-// is empty, as excelize reads it, not a formula without its value.
-func hasValue(cell, openV []byte) bool {
+// savedValue reports whether a cell's XML (from its formula on) holds
+// the formula's saved result: a <v> element with a value, or an empty one
+// (<v></v>, <v/>) in a cell of type str (text), a saved empty text, as a
+// formula such as =IF(C2="","",C2) gives: that cell is empty, as excelize
+// reads it, not a formula without its value. An empty <v> in a cell of
+// any other type (a number's, by default) holds nothing: programs that do
+// not compute formulas write their formulas so.
+func savedValue(cell, openV []byte, text bool) bool {
 	v := bytes.Index(cell, openV)
 	if v < 0 || v+len(openV) >= len(cell) {
 		return false
 	}
-	c := cell[v+len(openV)]
-	return c == '>' || c == ' ' || c == '/'
+	rest := cell[v+len(openV):]
+	switch rest[0] {
+	case '/':
+		return text // <v/>
+	case '>', ' ':
+	default:
+		return false // another element, such as <vm>
+	}
+	gt := bytes.IndexByte(rest, '>')
+	if gt < 0 {
+		return false
+	}
+	if gt > 0 && rest[gt-1] == '/' {
+		return text // <v xml:space="preserve"/>
+	}
+	end := bytes.IndexByte(rest[gt+1:], '<')
+	return text || (end < 0 || len(bytes.TrimSpace(rest[gt+1:gt+1+end])) > 0)
 }
 
 // cellRef reads the r="C12" attribute of a cell's start tag.
@@ -199,11 +218,15 @@ func cellRef(tag []byte) (col, row int, ok bool) {
 // formulaHint says what a cell that is not a number is, when a
 // spreadsheet made it so: a formula without a saved value, one of merged
 // cells other than the one holding their value (markMerged), or an error
-// value; "" for any other text.
-func formulaHint(cell string) string {
+// value; "" for any other text. ref is the cell's reference (E2), "" when
+// unknown (cellName).
+func formulaHint(cell, ref string) string {
 	switch {
 	case strings.HasPrefix(cell, "="):
-		return "; the cell holds a formula without its value (the workbook was saved by a program that does not compute formulas): open the workbook in a spreadsheet program and save it, or export the sheet as CSV"
+		if ref != "" {
+			ref += " "
+		}
+		return "; the cell " + ref + "holds a formula without its value (the workbook was saved by a program that does not compute formulas): open the workbook in a spreadsheet program that computes formulas and save it, or export the sheet's values as CSV"
 	case strings.HasPrefix(cell, "(merged cells ") && strings.HasSuffix(cell, ")"):
 		ref := strings.TrimSuffix(strings.TrimPrefix(cell, "(merged cells "), ")")
 		first, _, _ := strings.Cut(ref, ":")

@@ -54,12 +54,12 @@ func TestWorkbookFormulas(t *testing.T) {
 	}
 	opt := Options{Outcome: "y", Predictors: []string{"c"}, Dialect: Dialect{Sheet: "s", HeaderRow: 2}}
 	_, err := readBytes(raw, "f.xlsx", opt)
-	if err == nil || !strings.Contains(err.Error(), `f.xlsx:5: column "c": value "=A5*2&\"<\"" is not a number; the cell holds a formula without its value`) {
+	if err == nil || !strings.Contains(err.Error(), `f.xlsx:5: column "c": value "=A5*2&\"<\"" is not a number; the cell D5 holds a formula without its value`) {
 		t.Errorf("formula without a value: %v", err)
 	}
 	opt.PredictorLevels = map[string][]string{"c": {"1"}}
 	_, err = readBytes(raw, "f.xlsx", opt)
-	if err == nil || !strings.Contains(err.Error(), `the cell holds a formula without its value`) {
+	if err == nil || !strings.Contains(err.Error(), `"1"; the cell D5 holds a formula without its value`) {
 		t.Errorf("formula without a value, as a level: %v", err)
 	}
 	// Column a: the saved formula's value is read, E3's formula is no matter.
@@ -158,12 +158,20 @@ func rezip(t testing.TB, raw []byte, edit func(name string, body []byte) []byte,
 // format (from memory), as a t="str" cell with an empty <v> element: its
 // value is saved, and it is the empty text, so the cell is missing, not a
 // formula without its value (re-saving the workbook would not change it).
-// Only a formula without a <v> element has no saved value.
+// A formula without a <v> element, or with an empty one in a cell of
+// another type (a number's, by default: no t, t="n"), as programs that do
+// not compute formulas save them, has no saved value.
 func TestWorkbookFormulaEmptyResult(t *testing.T) {
 	for _, v := range []string{"<v></v>", "<v/>", `<v xml:space="preserve"></v>`} {
 		x := []byte(`<worksheet><sheetData><row r="2"><c r="D2" t="str"><f>IF(C2="","",C2)</f>` + v + `</c><c r="E2" t="str"><f>C2</f></c></row></sheetData></worksheet>`)
 		if got := scanFormulas(x); len(got) != 1 || len(got[2]) != 1 || got[2][5] != "=C2" {
 			t.Errorf("%s: formulas without a saved value %v, want only E2 (=C2)", v, got)
+		}
+		for _, typ := range []string{"", ` t="n"`, ` t="b"`} {
+			x := []byte(`<worksheet><sheetData><row r="2"><c r="D2"` + typ + `><f>1000*3.5</f>` + v + `</c><c r="E2"><f>2+1</f><v>3</v></c></row></sheetData></worksheet>`)
+			if got := scanFormulas(x); len(got) != 1 || len(got[2]) != 1 || got[2][4] != "=1000*3.5" {
+				t.Errorf("%s%s: formulas without a saved value %v, want only D2 (=1000*3.5)", v, typ, got)
+			}
 		}
 	}
 	old := `<c r="D5" t="str"><f>A5*2&amp;&#34;&lt;&#34;</f></c>`
@@ -172,6 +180,12 @@ func TestWorkbookFormulaEmptyResult(t *testing.T) {
 		d, err := readBytes(raw, "f.xlsx", Options{Outcome: "y", Predictors: []string{"c"}, Dialect: Dialect{Sheet: "s", HeaderRow: 2}})
 		if err != nil || d.N != 4 || len(d.Dropped) != 1 || d.Dropped[0] != (DropCount{Column: "c", Rows: 1}) {
 			t.Errorf("%s: %v %+v, want row 5 dropped as missing in c", v, err, d)
+		}
+		// As a program that computes no formula saves one: refused.
+		raw = withSheetXML(t, formulaBook(t), old, `<c r="D5"><f>1000*3.5</f>`+v+`</c>`)
+		_, err = readBytes(raw, "f.xlsx", Options{Outcome: "y", Predictors: []string{"c"}, Dialect: Dialect{Sheet: "s", HeaderRow: 2}})
+		if err == nil || !strings.Contains(err.Error(), `f.xlsx:5: column "c": value "=1000*3.5" is not a number; the cell D5 holds a formula without its value`) {
+			t.Errorf("%s without t=\"str\": %v, want a formula without its value", v, err)
 		}
 	}
 }

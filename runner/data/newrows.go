@@ -139,7 +139,7 @@ func LoadNewRows(path string, predictors []string, levels map[string][]string, o
 					}
 				}
 				if l < 0 {
-					hint := formulaHint(cell)
+					hint := formulaHint(cell, cellName(cr, pos[j]))
 					if hint == "" {
 						hint = levelHint(cell, lv, "write the new rows' values as the levels are written")
 					}
@@ -148,7 +148,7 @@ func LoadNewRows(path string, predictors []string, levels map[string][]string, o
 				v = float64(l)
 			} else {
 				v, msg = dialect.number(cell)
-				msg += notNumberHint(cell, msg)
+				msg += notNumberHint(cell, msg, cellName(cr, pos[j]))
 			}
 			if msg != "" {
 				return nil, &Error{File: path, Line: line, Column: c, Msg: msg}

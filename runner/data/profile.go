@@ -48,16 +48,36 @@ const MaxCount = 10000
 // file needs none) and profiles every column. Values are listed in order
 // of first appearance, or numerically for numbers.
 func ProfileFile(path string, missingTokens []string, d Dialect) ([]Profile, error) {
+	p, _, err := ProfileSheet(path, missingTokens, d)
+	return p, err
+}
+
+// ProfileSheet is ProfileFile, with the worksheet read when the file is
+// a workbook (the one the reader picks when d names none: chooseSheet),
+// nil otherwise.
+func ProfileSheet(path string, missingTokens []string, d Dialect) ([]Profile, *SheetRead, error) {
 	f, err := openData(path)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	defer f.Close()
 	r := &reader{file: path, opt: Options{MissingTokens: missingTokens, Dialect: d}}
 	r.missing = r.opt.missingSet()
 	if err := r.start(f); err != nil {
-		return nil, err
+		return nil, nil, err
 	}
+	p, err := r.profile()
+	var sheet *SheetRead
+	if sr, ok := r.cr.(*sheetRecords); ok {
+		read := sr.read
+		sheet = &read
+	}
+	return p, sheet, err
+}
+
+// profile profiles every column of the rows after the header.
+func (r *reader) profile() ([]Profile, error) {
+	d := r.opt.Dialect
 	names, _, err := r.names()
 	if err != nil {
 		return nil, err

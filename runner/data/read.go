@@ -87,7 +87,18 @@ func readBytes(raw []byte, name string, opt Options) (*Dataset, error) {
 			return d, err
 		}
 	}
-	return r.rows()
+	return r.sheetRows()
+}
+
+// sheetRows reads the rows (r.rows), and names the worksheet they come
+// from when the file is a workbook (Dataset.Sheet).
+func (r *reader) sheetRows() (*Dataset, error) {
+	d, err := r.rows()
+	if sr, ok := r.cr.(*sheetRecords); ok && d != nil {
+		read := sr.read
+		d.Sheet = &read
+	}
+	return d, err
 }
 
 // reader holds the state of one Read.
@@ -151,7 +162,7 @@ func (r *reader) read(in io.Reader) (*Dataset, error) {
 	if err := r.header(cols); err != nil {
 		return nil, err
 	}
-	return r.rows()
+	return r.sheetRows()
 }
 
 // header reads the header line and finds the used columns in it.
@@ -165,8 +176,12 @@ func (r *reader) header(cols []usedCol) error {
 		if !ok {
 			// A header read whole as one name is most often a file in
 			// another dialect than the one asked for: say which.
-			return r.dialectHint(r.fail(0, cols[i].name, "%s column not found in the header; available columns: %s",
+			e := r.dialectHint(r.fail(0, cols[i].name, "%s column not found in the header; available columns: %s",
 				cols[i].role, quoteList(names)))
+			if sr, ok := r.cr.(*sheetRecords); ok {
+				e.Msg += fmt.Sprintf("; the header was read from row %d of the sheet %s: if the column names are in another row, give it with data.header_row (ordplan fit and ordplan init: --header-row)", sr.headerLine, quoteCell(sr.read.Name))
+			}
+			return e
 		}
 		cols[i].index = j
 	}
@@ -205,6 +220,9 @@ func (r *reader) names() ([]string, map[string]int, error) {
 	for i, h := range hdr {
 		n := strings.TrimSpace(h)
 		if n == "" {
+			if ref := cellName(r.cr, i); ref != "" {
+				return nil, nil, r.fail(line, "", "header: column %d (cell %s) has no name, and cells below it are filled: name it", i+1, ref)
+			}
 			return nil, nil, r.fail(line, "", "header: column %d has no name", i+1)
 		}
 		if j, dup := where[n]; dup {

@@ -285,6 +285,7 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 	for ci, c := range r.cols {
 		cell := strings.TrimSpace(rec[c.index])
 		line, _ := r.cr.FieldPos(c.index)
+		ref := cellName(r.cr, c.index)
 		if r.missingIn(c.name, cell) {
 			if opt.Refuse {
 				undecided := ""
@@ -311,7 +312,7 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 			if len(opt.Categories) > 0 {
 				i, ok := t.labels[cell]
 				if !ok {
-					msg = "value " + quoteCell(cell) + " is not one of the declared categories: " + quoteList(opt.Categories) + formulaHint(cell)
+					msg = "value " + quoteCell(cell) + " is not one of the declared categories: " + quoteList(opt.Categories) + formulaHint(cell, ref)
 				}
 				row.y = i
 				row.outLabel = cell
@@ -320,7 +321,7 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 				}
 			} else {
 				if row.code, msg = parseCode(cell); msg != "" {
-					msg += formulaHint(cell)
+					msg += formulaHint(cell, ref)
 				}
 				row.outLabel = strconv.FormatInt(row.code, 10)
 			}
@@ -328,7 +329,7 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 			if idx, cat := t.levelIndex[c.name]; cat {
 				l, ok := idx[cell]
 				if !ok {
-					hint := formulaHint(cell)
+					hint := formulaHint(cell, ref)
 					if hint == "" {
 						hint = levelHint(cell, opt.PredictorLevels[c.name], "write the levels as the data do")
 					}
@@ -340,7 +341,7 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 				t.xs[c.pos] = float64(l)
 			} else {
 				t.xs[c.pos], msg = r.opt.Dialect.number(cell)
-				msg += notNumberHint(cell, msg)
+				msg += notNumberHint(cell, msg, ref)
 			}
 		case roleWeights:
 			row.w, msg = r.opt.Dialect.number(cell)
@@ -363,7 +364,8 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 // that is not a number, to say what the cell is: a date or a time, a
 // spreadsheet's formula, merged cell or error value, or text; "" for a
 // malformed number, whose message says enough, and for any other message.
-func notNumberHint(cell, msg string) string {
+// ref is the cell's reference in a workbook (formulaHint).
+func notNumberHint(cell, msg, ref string) string {
 	if !strings.HasSuffix(msg, " is not a number") {
 		return ""
 	}
@@ -374,8 +376,8 @@ func notNumberHint(cell, msg string) string {
 		return "; it is a percentage: write it as a number without the percent sign (50, or 0.5 as a share)"
 	case isNumberLike(cell):
 		return ""
-	case formulaHint(cell) != "":
-		return formulaHint(cell)
+	case formulaHint(cell, ref) != "":
+		return formulaHint(cell, ref)
 	}
 	return "; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)"
 }

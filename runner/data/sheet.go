@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"io"
 	"path/filepath"
+	"strconv"
 	"strings"
 
 	"github.com/xuri/excelize/v2"
@@ -29,19 +30,134 @@ func IsWorkbook(name string) bool {
 
 // sheetRecords are the rows of one worksheet, from the header row on.
 type sheetRecords struct {
-	rows  [][]string
-	first int // sheet row number of rows[0]
+	rows  [][]string // from the header row on, without the lead columns
+	first int        // sheet row number of rows[0]
+	// lead is the number of leading columns, empty in every row, left out
+	// of rows (emptyLead): rows[i][j] is the cell of sheet column lead+j+1
+	lead int
 	// formulas: cells whose formula has no saved value (read as empty by
-	// excelize): sheet row -> column -> the formula's text (unsavedFormulas)
+	// excelize): sheet row -> column -> the formula's text
+	// (unsavedFormulas), written into the rows in their place
 	formulas map[int]map[int]string
 	next     int
 	width    int // header width, once read
 	line     int // row number of the last record read
+	// hiddenRows are the sheet rows hidden from view (scanHiddenRows);
+	// read.HiddenRows counts those among the records read
+	hiddenRows map[int]bool
+	read       SheetRead
+	header     []string // the header's names, once read
+	headerLine int      // its sheet row
+}
+
+// SheetRead names the worksheet a workbook's data were read from.
+type SheetRead struct {
+	Name string
+	// Hidden: a hidden sheet, read because data.sheet (--sheet) named it
+	// (chooseSheet never picks one).
+	Hidden bool
+	// HiddenRows counts the data rows read that the sheet hides from view
+	// (hidden rows, or rows a filter hides): they are read as the data
+	// they are, but nobody looking at the sheet sees them.
+	HiddenRows int
+	// Sheets is the number of the workbook's sheets, hidden ones too.
+	Sheets int
+}
+
+// chooseSheet is the worksheet to read, in the workbook's spelling of its
+// name, and whether it is hidden; msg says why there is none. A sheet
+// named (data.sheet, --sheet) is read, hidden or not. With none named, the
+// one visible sheet that holds a filled cell is read: a hidden sheet (an
+// old draft, a lookup table) is never read unless named, and when several
+// visible sheets hold cells the program does not guess which are the data
+// (the first is often notes or a summary): msg lists them and asks for
+// data.sheet. `ordplan init` reads the sheet this picks (ProfileFile).
+func chooseSheet(f *excelize.File, named string) (sheet string, hidden bool, msg string) {
+	sheets := f.GetSheetList()
+	if len(sheets) == 0 {
+		return "", false, "workbook has no worksheets"
+	}
+	visible := func(s string) bool { v, err := f.GetSheetVisible(s); return err == nil && v }
+	if named != "" {
+		for _, s := range sheets {
+			if s == named {
+				return s, !visible(s), ""
+			}
+		}
+		for _, s := range sheets {
+			if strings.EqualFold(s, named) {
+				return s, !visible(s), ""
+			}
+		}
+		return "", false, fmt.Sprintf("workbook has no sheet %s (data.sheet, or --sheet); its sheets: %s", quoteCell(named), quoteList(sheets))
+	}
+	var filled, shown, hiddenFilled []string
+	for _, s := range sheets {
+		switch v := visible(s); {
+		case v && holdsCells(f, s):
+			filled = append(filled, s)
+		case v:
+			shown = append(shown, s)
+		case holdsCells(f, s):
+			hiddenFilled = append(hiddenFilled, s)
+		}
+	}
+	switch {
+	case len(filled) == 1:
+		return filled[0], false, ""
+	case len(filled) > 1:
+		return "", false, fmt.Sprintf("workbook has %d visible sheets with cells filled (%s): name the sheet of the data with data.sheet (ordplan fit and ordplan init: --sheet)", len(filled), quoteList(filled))
+	case len(hiddenFilled) > 0:
+		return "", false, fmt.Sprintf("workbook's visible sheets are empty; only hidden sheets hold cells (%s), and a hidden sheet is read only when named: if it holds the data, name it with data.sheet (ordplan fit and ordplan init: --sheet)", quoteList(hiddenFilled))
+	}
+	return "", false, fmt.Sprintf("workbook's sheets are all empty (%s)", quoteList(sheets))
+}
+
+// holdsCells reports whether a worksheet has a filled cell (a formatted
+// cell without a value is not one), reading its rows up to the first
+// such.
+func holdsCells(f *excelize.File, sheet string) bool {
+	rows, err := f.Rows(sheet)
+	if err != nil {
+		return false
+	}
+	defer rows.Close()
+	for rows.Next() {
+		cols, err := rows.Columns(excelize.Options{RawCellValue: true})
+		if err != nil {
+			return false
+		}
+		if !blankRow(cols) {
+			return true
+		}
+	}
+	return false
+}
+
+// otherSheets is, for a message about sheet, the workbook's other sheets
+// ("; the workbook's other sheets: ..."), the hidden ones said to be so;
+// "" when it has none.
+func otherSheets(f *excelize.File, sheet string) string {
+	var others []string
+	for _, s := range f.GetSheetList() {
+		if s == sheet {
+			continue
+		}
+		q := quoteCell(s)
+		if v, err := f.GetSheetVisible(s); err == nil && !v {
+			q += " (hidden)"
+		}
+		others = append(others, q)
+	}
+	if len(others) == 0 {
+		return ""
+	}
+	return "; the workbook's other sheets: " + strings.Join(others, ", ") + " (data.sheet, or --sheet, names the one to read)"
 }
 
 // openSheet reads the workbook in raw and returns the records of the
-// dialect's sheet (the first sheet when none is named), starting at its
-// header row.
+// dialect's sheet (chooseSheet: the one visible sheet with cells when
+// none is named), starting at its header row.
 func openSheet(raw []byte, d Dialect) (*sheetRecords, string) {
 	if !bytes.HasPrefix(raw, []byte("PK\x03\x04")) {
 		return nil, "is not an .xlsx workbook (it does not start like one, a ZIP container): save it as .xlsx, or give the file a .csv name if it is CSV text"
@@ -54,27 +170,25 @@ func openSheet(raw []byte, d Dialect) (*sheetRecords, string) {
 		return nil, "is not a readable .xlsx workbook (" + err.Error() + "): open and save it again as .xlsx, or export the sheet as CSV"
 	}
 	defer f.Close()
-	sheets := f.GetSheetList()
-	if len(sheets) == 0 {
-		return nil, "workbook has no worksheets"
-	}
-	sheet := d.Sheet
-	if sheet == "" {
-		sheet = sheets[0]
-	} else if idx, _ := f.GetSheetIndex(sheet); idx < 0 {
-		return nil, fmt.Sprintf("workbook has no sheet %s (data.sheet, or --sheet); its sheets: %s", quoteCell(sheet), quoteList(sheets))
+	sheet, hidden, msg := chooseSheet(f, d.Sheet)
+	if msg != "" {
+		return nil, msg
 	}
 	rows, err := f.GetRows(sheet, excelize.Options{RawCellValue: true})
 	if err != nil {
 		return nil, fmt.Sprintf("sheet %s cannot be read: %v", quoteCell(sheet), err)
 	}
+	if len(rows) == 0 {
+		return nil, fmt.Sprintf("sheet %s is empty%s", quoteCell(sheet), otherSheets(f, sheet))
+	}
 	h := max(d.HeaderRow, 1)
 	if h > len(rows) {
 		return nil, fmt.Sprintf("sheet %s has %d rows, so no header in row %d (data.header_row, or --header-row)", quoteCell(sheet), len(rows), h)
 	}
-	sr := &sheetRecords{rows: rows[h-1:], first: h}
+	sr := &sheetRecords{first: h, read: SheetRead{Name: sheet, Hidden: hidden, Sheets: len(f.GetSheetList())}}
 	if files, x := workbookParts(raw, sheet); x != nil {
 		sr.formulas = scanFormulas(x)
+		sr.hiddenRows = scanHiddenRows(x)
 		scanBoolCells(x, func(col, row int) {
 			if row <= len(rows) && col <= len(rows[row-1]) {
 				switch rows[row-1][col-1] {
@@ -92,13 +206,55 @@ func openSheet(raw []byte, d Dialect) (*sheetRecords, string) {
 				}
 			})
 		}
+		if d.DecimalComma {
+			scanNumberCells(x, func(col, row int) {
+				if row <= len(rows) && col <= len(rows[row-1]) {
+					rows[row-1][col-1] = commaNumber(rows[row-1][col-1])
+				}
+			})
+		}
 	}
 	merged, err := f.GetMergeCells(sheet, true)
 	if err != nil {
 		return nil, fmt.Sprintf("sheet %s cannot be read: %v", quoteCell(sheet), err)
 	}
 	markMerged(rows, h, merged)
+	for row, cols := range sr.formulas {
+		for ; row > len(rows); rows = append(rows, nil) {
+		}
+		for col, text := range cols {
+			for len(rows[row-1]) < col {
+				rows[row-1] = append(rows[row-1], "")
+			}
+			rows[row-1][col-1] = text
+		}
+	}
+	sr.rows = rows[h-1:]
+	sr.lead = emptyLead(sr.rows)
+	for i, r := range sr.rows {
+		sr.rows[i] = r[min(sr.lead, len(r)):]
+	}
 	return sr, ""
+}
+
+// emptyLead is the number of leading columns empty in every row: a table
+// that starts at a later column (B2) leaves them so, and, holding nothing,
+// they are no columns of it.
+func emptyLead(rows [][]string) int {
+	lead := -1
+	for _, r := range rows {
+		n := 0
+		for n < len(r) && strings.TrimSpace(r[n]) == "" {
+			n++
+		}
+		if n == len(r) {
+			continue // an empty row
+		}
+		if lead < 0 || n < lead {
+			lead = n
+		}
+	}
+	return max(lead, 0)
 }
 
 // markMerged writes into the cells of data rows (below the header row h)
@@ -195,26 +351,24 @@ func (s *sheetRecords) Read() ([]string, error) {
 		rec := s.rows[s.next]
 		s.line = s.first + s.next
 		s.next++
-		for col, text := range s.formulas[s.line] {
-			for len(rec) < col {
-				rec = append(rec, "")
-			}
-			rec[col-1] = text
-		}
 		if blankRow(rec) {
 			continue
+		}
+		if s.width > 0 && s.hiddenRows[s.line] {
+			s.read.HiddenRows++
 		}
 		if s.width == 0 {
 			for len(rec) > 0 && strings.TrimSpace(rec[len(rec)-1]) == "" {
 				rec = rec[:len(rec)-1]
 			}
-			s.width = len(rec)
+			s.width, s.header = len(rec), rec
+			s.headerLine = s.line
 			return rec, nil
 		}
 		if len(rec) > s.width {
-			for _, c := range rec[s.width:] {
+			for j, c := range rec[s.width:] {
 				if strings.TrimSpace(c) != "" {
-					return rec, &csv.ParseError{StartLine: s.line, Line: s.line, Err: csv.ErrFieldCount}
+					return rec, &Error{Line: s.line, Msg: s.beyondHeader(s.width+j, c), Err: &csv.ParseError{StartLine: s.line, Line: s.line, Err: csv.ErrFieldCount}}
 				}
 			}
 			rec = rec[:s.width]
@@ -227,5 +381,107 @@ func (s *sheetRecords) Read() ([]string, error) {
 	return nil, io.EOF
 }
 
+// beyondHeader says what is wrong with the last row read, whose field
+// (0-based) holds cell, right of the header's last name: a note beside
+// the table, or, when the header holds one name (a title above the
+// table), a header lower down than the row read as it.
+func (s *sheetRecords) beyondHeader(field int, cell string) string {
+	last := cellName(s, s.width-1)
+	last = last[:len(last)-len(strconv.Itoa(s.line))] // its column's letters
+	msg := fmt.Sprintf("cell %s holds %s, right of the table, whose header (row %d) names %d columns, up to column %s", cellName(s, field), quoteCell(strings.TrimSpace(cell)), s.headerLine, s.width, last)
+	if s.width == 1 {
+		msg = fmt.Sprintf("cell %s holds %s, right of the header read from row %d, which holds one name, %s: if that is a title above the table, give the row of the column names with data.header_row (ordplan fit and ordplan init: --header-row); if the cell is a note beside the data, move or delete it", cellName(s, field), quoteCell(strings.TrimSpace(cell)), s.headerLine, quoteCell(strings.TrimSpace(s.header[0])))
+		return msg
+	}
+	return msg + ": if it is a note beside the data, move or delete it; if it is data, give its column a name in the header row"
+}
+
 // FieldPos gives the sheet row of the last record read.
 func (s *sheetRecords) FieldPos(int) (int, int) { return s.line, 0 }
+
+// cellName is the reference (E2) of field (0-based) of the last record a
+// worksheet's records gave, "" for any other records (CSV, Parquet, parts,
+// whose fields follow the first part's order).
+func cellName(cr records, field int) string {
+	s, ok := cr.(*sheetRecords)
+	if !ok || s.line == 0 {
+		return ""
+	}
+	name, err := excelize.CoordinatesToCellName(s.lead+field+1, s.line)
+	if err != nil {
+		return ""
+	}
+	return name
+}
+
+// scanHiddenRows finds the rows of a worksheet's XML hidden from view
+// (<row r="5" hidden="1">: hidden by hand, by a filter or by a collapsed
+// outline).
+func scanHiddenRows(x []byte) map[int]bool {
+	var out map[int]bool
+	eachTag(x, "row", func(tag []byte) {
+		h, ok := attr(tag, "hidden")
+		if !ok || !(h == "1" || h == "true") {
+			return
+		}
+		r, ok := attr(tag, "r")
+		if !ok {
+			return
+		}
+		if n, err := strconv.Atoi(r); err == nil && n > 0 {
+			if out == nil {
+				out = map[int]bool{}
+			}
+			out[n] = true
+		}
+	})
+	return out
+}
+
+// Where names the sheet for a summary: `sheet "data"`, with, for a hidden
+// sheet, that it is hidden and read because it was named.
+func (s *SheetRead) Where() string {
+	w := "sheet " + strconv.Quote(s.Name)
+	if s.Hidden {
+		w += " (a hidden sheet, read because data.sheet or --sheet names it)"
+	}
+	return w
+}
+
+// HiddenRowsNote says how many of the rows read the sheet hides from view
+// ("" when none): they are data, read as the others are.
+func (s *SheetRead) HiddenRowsNote() string {
+	switch s.HiddenRows {
+	case 0:
+		return ""
+	case 1:
+		return "1 of the rows read is hidden in the sheet (a hidden row, or one a filter hides); it was read as data like the others (delete it, or leave it out with a subset condition, if it should not count)"
+	}
+	return fmt.Sprintf("%d of the rows read are hidden in the sheet (hidden rows, or rows a filter hides); they were read as data like the others (delete them, or leave them out with a subset condition, if they should not count)", s.HiddenRows)
+}
+
+// scanNumberCells calls at for every numeric cell (no type, or type n) of
+// a worksheet's XML, with its column and row (both 1-based).
+func scanNumberCells(x []byte, at func(col, row int)) {
+	eachCellTag(x, func(tag []byte) {
+		if t, ok := attr(tag, "t"); ok && t != "n" {
+			return
+		}
+		if col, row, ok := cellRef(append([]byte(" "), tag...)); ok {
+			at(col, row)
+		}
+	})
+}
+
+// commaNumber is a number cell's stored text (always with a decimal
+// point, whatever the spreadsheet shows) written with a decimal comma, so
+// that a workbook read under data.decimal: comma (the setting of the CSV
+// files beside it) reads its number cells as the numbers they are; a text
+// that is not a stored number (a date or time read as its text) is
+// returned as it is. Text cells are not numbers: they follow the setting.
+func commaNumber(cell string) string {
+	if _, err := strconv.ParseFloat(cell, 64); err != nil {
+		return cell
+	}
+	return strings.Replace(cell, ".", ",", 1)
+}

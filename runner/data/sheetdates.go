@@ -188,13 +188,17 @@ func scanBoolCells(x []byte, at func(col, row int)) {
 
 // eachCellTag calls at with the attributes of every cell's start tag
 // (<c ...>) of a worksheet's XML, whatever its namespace prefix.
-func eachCellTag(x []byte, at func(tag []byte)) {
+func eachCellTag(x []byte, at func(tag []byte)) { eachTag(x, "c", at) }
+
+// eachTag calls at with the attributes of every start tag of the element
+// name (<name ...>) of a worksheet's XML, whatever its namespace prefix.
+func eachTag(x []byte, name string, at func(tag []byte)) {
 	root := bytes.Index(x, []byte("worksheet"))
 	lt := bytes.LastIndexByte(x[:max(root, 0)], '<')
 	if root < 0 || lt < 0 {
 		return
 	}
-	openC := []byte("<" + string(x[lt+1:root]) + "c ")
+	openC := []byte("<" + string(x[lt+1:root]) + name + " ")
 	for rest := x; ; {
 		i := bytes.Index(rest, openC)
 		if i < 0 {
