@@ -16,6 +16,7 @@ import (
 
 	"encoding/json"
 	"fmt"
+	"io"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -327,6 +328,7 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		"bad.xlsx": append([]byte("PK\x03\x04"), bytes.Repeat([]byte{7}, 200)...), "notzip.xlsx": []byte(csv),
 		"bad.parquet": []byte("PAR1garbagegarbagePAR1"), "notpq.parquet": []byte(csv), "dates.parquet": datesParquet(t),
 		"formula.xlsx": formulaWorkbook(t), "shown.xlsx": shownWorkbook(t), "bomb.xlsx": claimingWorkbook(t),
+		"formula0.xlsx": emptyValueFormula(t, formulaWorkbook(t)), "sheets.xlsx": sheetsWorkbook(t),
 		"book.xlsx":    toWorkbook(t, []byte(strings.ReplaceAll(csv, "safety", "y"))),
 		"parts/p1.csv": []byte(csv), "parts/p2.csv": []byte(strings.SplitAfter(csv, "\n")[0] + strings.Join(reversed(rows), "\n") + "\n"), "otherpart.csv": []byte("y,a,z\n1,0.5,1\n"),
 		"emptypart.csv": []byte(strings.SplitAfter(csv, "\n")[0]),
@@ -365,6 +367,80 @@ func formulaWorkbook(t *testing.T) []byte {
 		}
 	}
 	f.SetCellFormula("Sheet1", "B3", "A3/4")
+	var b bytes.Buffer
+	if err := f.Write(&b); err != nil {
+		t.Fatal(err)
+	}
+	return b.Bytes()
+}
+
+// emptyValueFormula is the workbook raw (formulaWorkbook) with its
+// formula saved as programs that compute no formula save one: an empty
+// <v> in a cell that is not of type str.
+func emptyValueFormula(t *testing.T, raw []byte) []byte {
+	t.Helper()
+	zr, err := zip.NewReader(bytes.NewReader(raw), int64(len(raw)))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b bytes.Buffer
+	zw := zip.NewWriter(&b)
+	for _, f := range zr.File {
+		rc, err := f.Open()
+		if err != nil {
+			t.Fatal(err)
+		}
+		body, err := io.ReadAll(rc)
+		rc.Close()
+		if err != nil {
+			t.Fatal(err)
+		}
+		if f.Name == "xl/worksheets/sheet1.xml" {
+			old := []byte(`<c r="B3" t="str"><f>A3/4</f>`)
+			if !bytes.Contains(body, old) {
+				t.Fatalf("%s has no %s", f.Name, old)
+			}
+			body = bytes.Replace(body, old, []byte(`<c r="B3"><f>A3/4</f><v></v>`), 1)
+		}
+		w, err := zw.Create(f.Name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		w.Write(body)
+	}
+	if err := zw.Close(); err != nil {
+		t.Fatal(err)
+	}
+	return b.Bytes()
+}
+
+// sheetsWorkbook is a workbook of a sheet of notes, a sheet "data" of y,
+// a, b with a note in E3 right of the table, a hidden sheet "old" of the
+// same data without the note, and an empty sheet "blank".
+func sheetsWorkbook(t *testing.T) []byte {
+	t.Helper()
+	f := excelize.NewFile()
+	defer f.Close()
+	f.SetSheetName("Sheet1", "notes")
+	f.SetCellValue("notes", "A1", "the data are on the sheet data")
+	for _, s := range []string{"data", "old", "blank"} {
+		if _, err := f.NewSheet(s); err != nil {
+			t.Fatal(err)
+		}
+	}
+	for i, row := range [][]any{{"y", "a", "b"}, {1, 0.5, 1}, {2, 0.1, 0, nil, "checked 2024-03"}, {1, 0.7, 1}, {2, 0.2, 0}, {2, 0.6, 1}, {1, 0.15, 0}} {
+		cell, _ := excelize.CoordinatesToCellName(1, i+1)
+		if err := f.SetSheetRow("data", cell, &row); err != nil {
+			t.Fatal(err)
+		}
+		old := row[:min(len(row), 3)]
+		if err := f.SetSheetRow("old", cell, &old); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := f.SetSheetVisible("old", false); err != nil {
+		t.Fatal(err)
+	}
 	var b bytes.Buffer
 	if err := f.Write(&b); err != nil {
 		t.Fatal(err)
@@ -1089,7 +1165,23 @@ func catalogue(dir string) (items []badInput) {
 		{id: "X15", name: "a Parquet date column used as a number", args: fitArgs(d("dates.parquet"), "--predictors", "a,day"), code: 1,
 			want: []string{"ordplan: dates.parquet:2: column \"day\": value \"2022-01-08\" is not a number; it is a date: a predictor must be a number, so write it as one in a column of its own, such as the days or years since a start date, or declare the column categorical with its values as levels\n"}},
 		{id: "X16", name: "a workbook cell whose formula has no saved value", args: fitArgs(d("formula.xlsx"), "--predictors", "a"), code: 1,
-			want: []string{`formula.xlsx:3: column "a": value "=A3/4" is not a number; the cell holds a formula without its value (the workbook was saved by a program that does not compute formulas): open the workbook in a spreadsheet program and save it, or export the sheet as CSV`}},
+			want: []string{`formula.xlsx:3: column "a": value "=A3/4" is not a number; the cell B3 holds a formula without its value (the workbook was saved by a program that does not compute formulas): open the workbook in a spreadsheet program that computes formulas and save it, or export the sheet's values as CSV`}},
+		{id: "X16", name: "a workbook cell whose formula is saved with an empty value, not as text", args: fitArgs(d("formula0.xlsx"), "--predictors", "a"), code: 1,
+			want: []string{`formula0.xlsx:3: column "a": value "=A3/4" is not a number; the cell B3 holds a formula without its value`}},
+		{id: "X21", name: "a workbook with several visible sheets with cells, none named", args: fitArgs(d("sheets.xlsx"), "--predictors", "a"), code: 1,
+			want: []string{"ordplan: sheets.xlsx: workbook has 2 visible sheets with cells filled (\"notes\", \"data\"): name the sheet of the data with data.sheet (ordplan fit and ordplan init: --sheet)\n"}},
+		{id: "X21", name: "a workbook with several visible sheets with cells, none named, in ordplan init", args: []string{"init", "X21init.yaml", "--data", "sheets.xlsx"}, setup: inDataFolder, code: 1,
+			want: []string{"ordplan: sheets.xlsx: workbook has 2 visible sheets with cells filled (\"notes\", \"data\"): name the sheet of the data with data.sheet (ordplan fit and ordplan init: --sheet)\n"}},
+		{id: "X21", name: "a hidden sheet named is read, and said to be hidden", args: fitArgs(d("sheets.xlsx"), "--predictors", "a", "--sheet", "old"), code: 0,
+			want: []string{`sheets.xlsx, sheet "old" (a hidden sheet, read because data.sheet or --sheet names it): 6 rows read, 6 used`}},
+		{id: "X22", name: "data.sheet or data.header_row in a plan without a workbook", args: []string{"check"}, plan: edit("file: d.csv", "file: d.csv\n  header_row: 2"), code: 1,
+			want: []string{`X22.yaml:4:15: data.header_row: applies to .xlsx workbooks, and no file of this plan is one (the data file "d.csv" is not named *.xlsx): a CSV file's header is its first line: remove the lines above it (a title) from the file, and the key`}},
+		{id: "X22", name: "data.sheet in a plan without a workbook", args: []string{"run"}, plan: edit("file: d.csv", "file: d.csv\n  sheet: data"), code: 1,
+			want: []string{`X22.yaml:4:10: data.sheet: applies to .xlsx workbooks, and no file of this plan is one (the data file "d.csv" is not named *.xlsx): remove the key`}},
+		{id: "X23", name: "a filled cell right of a workbook's table (a note beside the data)", args: fitArgs(d("sheets.xlsx"), "--predictors", "a", "--sheet", "data"), code: 1,
+			want: []string{"ordplan: sheets.xlsx:3: cell E3 holds \"checked 2024-03\", right of the table, whose header (row 1) names 3 columns, up to column C: if it is a note beside the data, move or delete it; if it is data, give its column a name in the header row\n"}},
+		{id: "X24", name: "a workbook's sheet named that is empty", args: fitArgs(d("sheets.xlsx"), "--predictors", "a", "--sheet", "blank"), code: 1,
+			want: []string{"ordplan: sheets.xlsx: sheet \"blank\" is empty; the workbook's other sheets: \"notes\", \"data\", \"old\" (hidden) (data.sheet, or --sheet, names the one to read)\n"}},
 		{id: "X17", name: "a spreadsheet error value in a used column", args: fitArgs(d("formula.xlsx"), "--predictors", "b"), code: 1,
 			want: []string{`formula.xlsx:4: column "b": value "#DIV/0!" is not a number; it is a spreadsheet's error value: correct the formula that gave it, or list "#DIV/0!" among the missing-value markers (data.missing_values)`}},
 		{id: "X18", name: "a workbook's dates used as a number", args: fitArgs(d("shown.xlsx"), "--predictors", "a,day"), code: 1,

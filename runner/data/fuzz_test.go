@@ -74,6 +74,10 @@ func FuzzReadWorkbook(f *testing.F) {
 	f.Add(formulaBook(f)) // formulas without saved values (formulas.go)
 	f.Add(dateBook(f, 4)) // dates and times in date formats (sheetdates.go)
 	f.Add(mergedBook(f))  // merged cells (markMerged)
+	// A hidden sheet before the data, hidden rows, a table at C2 with a
+	// note beside it (chooseSheet, scanHiddenRows, emptyLead).
+	f.Add(sheetsBook(f, bookSheet{name: "old", hidden: true, rows: sheetDraft}, bookSheet{name: "data", rows: sheetData, hiddenRows: []int{3}}))
+	f.Add(sheetsBook(f, bookSheet{name: "s", at: "C2", rows: [][]any{{"y", "a", "b"}, {1, 0.5, 1}, {2, 1.0, 0, nil, "note"}}}))
 	opt := Options{Outcome: "y", Predictors: []string{"a", "b"}}
 	f.Fuzz(func(t *testing.T, in []byte) {
 		if len(in) > 1<<16 {
@@ -96,6 +100,9 @@ func FuzzScanFormulas(f *testing.F) {
 	f.Add([]byte(`<worksheet><sheetData><row r="2"><c r="B2"><f>A2*2</f></c><c r="C2"><f>1</f><v>1</v></c></row></sheetData></worksheet>`))
 	f.Add([]byte(`<x:worksheet><x:c r="A1" t="str"><x:f t="shared" si="0"/><x:v></x:v></x:c><x:c r="A2"><x:f>`))
 	f.Add([]byte(`<worksheet><c r="A1"><rPr><family val="2"/></rPr><f/></c>`))
+	// As programs that compute no formula save one: an empty <v> in a cell
+	// that is not of type str.
+	f.Add([]byte(`<worksheet><sheetData><row r="2"><c r="E2"><f>1000*3.5</f><v></v></c><c r="F2" t="n"><f>1</f><v/></c><c r="G2" t="str"><f>""</f><v xml:space="preserve"></v></c></row></sheetData></worksheet>`))
 	f.Fuzz(func(t *testing.T, x []byte) {
 		for row, cols := range scanFormulas(x) {
 			for col, text := range cols {

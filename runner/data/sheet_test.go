@@ -1,0 +1,179 @@
+package data
+
+import (
+	"bytes"
+	"strings"
+	"testing"
+
+	"github.com/xuri/excelize/v2"
+)
+
+// bookSheet is one worksheet of sheetsBook: its rows from cell at (A1
+// when ""), whether it is hidden, and the sheet rows it hides.
+type bookSheet struct {
+	name       string
+	hidden     bool
+	at         string
+	rows       [][]any
+	hiddenRows []int
+}
+
+// sheetsBook is a workbook (written by excelize) of the sheets given, in
+// order.
+func sheetsBook(t testing.TB, sheets ...bookSheet) []byte {
+	t.Helper()
+	f := excelize.NewFile()
+	defer f.Close()
+	for i, s := range sheets {
+		if i == 0 {
+			f.SetSheetName("Sheet1", s.name)
+		} else if _, err := f.NewSheet(s.name); err != nil {
+			t.Fatal(err)
+		}
+		col, row := 1, 1
+		if s.at != "" {
+			col, row, _ = excelize.CellNameToCoordinates(s.at)
+		}
+		for j, r := range s.rows {
+			cell, _ := excelize.CoordinatesToCellName(col, row+j)
+			if err := f.SetSheetRow(s.name, cell, &r); err != nil {
+				t.Fatal(err)
+			}
+		}
+		for _, r := range s.hiddenRows {
+			f.SetRowVisible(s.name, r, false)
+		}
+	}
+	// Hidden once every sheet exists and a visible one is active (a
+	// workbook keeps its active sheet visible).
+	for i, s := range sheets {
+		if !s.hidden {
+			f.SetActiveSheet(i)
+			break
+		}
+	}
+	for _, s := range sheets {
+		if s.hidden {
+			if err := f.SetSheetVisible(s.name, false); err != nil {
+				t.Fatal(err)
+			}
+		}
+	}
+	var b bytes.Buffer
+	if err := f.Write(&b); err != nil {
+		t.Fatal(err)
+	}
+	return b.Bytes()
+}
+
+var (
+	sheetData  = [][]any{{"y", "a"}, {1, 0.5}, {2, 1.5}, {1, 2.5}, {2, 0.0}}
+	sheetDraft = [][]any{{"y", "a"}, {1, 9.0}, {2, 9.0}, {1, 9.0}, {2, 9.0}}
+	sheetOpt   = Options{Outcome: "y", Predictors: []string{"a"}}
+)
+
+// With no sheet named, the one visible sheet with cells filled is read: a
+// hidden sheet before it (an old draft) is not, nor an empty visible one;
+// a hidden sheet is read when named, and says it is hidden; several
+// visible sheets with cells, or only hidden ones, are refused with their
+// names and the key that names one.
+func TestWorkbookSheetChoice(t *testing.T) {
+	read := func(raw []byte, sheet string) (*Dataset, error) {
+		opt := sheetOpt
+		opt.Dialect.Sheet = sheet
+		return readBytes(raw, "b.xlsx", opt)
+	}
+	hiddenFirst := sheetsBook(t, bookSheet{name: "old", hidden: true, rows: sheetDraft}, bookSheet{name: "data", rows: sheetData})
+	d, err := read(hiddenFirst, "")
+	if err != nil || d.X[0] != 0.5 || d.Sheet == nil || *d.Sheet != (SheetRead{Name: "data", Sheets: 2}) {
+		t.Fatalf("hidden first sheet: %v %+v, want the visible sheet data", err, d)
+	}
+	d, err = read(hiddenFirst, "old")
+	if err != nil || d.X[0] != 9 || d.Sheet == nil || !d.Sheet.Hidden || !strings.Contains(d.Sheet.Where(), `sheet "old" (a hidden sheet, read because data.sheet or --sheet names it)`) {
+		t.Errorf("hidden sheet named: %v %+v %+v", err, d, d.Sheet)
+	}
+	d, err = read(sheetsBook(t, bookSheet{name: "notes"}, bookSheet{name: "Daten", rows: sheetData}), "")
+	if err != nil || d.Sheet.Name != "Daten" {
+		t.Errorf("empty first sheet: %v %+v", err, d)
+	}
+	_, err = read(sheetsBook(t, bookSheet{name: "notes", rows: [][]any{{"read me"}}}, bookSheet{name: "data", rows: sheetData}), "")
+	if err == nil || err.Error() != `b.xlsx: workbook has 2 visible sheets with cells filled ("notes", "data"): name the sheet of the data with data.sheet (ordplan fit and ordplan init: --sheet)` {
+		t.Errorf("two sheets with cells: %v", err)
+	}
+	_, err = read(sheetsBook(t, bookSheet{name: "front"}, bookSheet{name: "data", hidden: true, rows: sheetData}), "")
+	if err == nil || !strings.Contains(err.Error(), `only hidden sheets hold cells ("data"), and a hidden sheet is read only when named`) {
+		t.Errorf("only a hidden sheet with cells: %v", err)
+	}
+	_, err = read(sheetsBook(t, bookSheet{name: "front"}, bookSheet{name: "data", rows: sheetData}), "front")
+	if err == nil || err.Error() != `b.xlsx: sheet "front" is empty; the workbook's other sheets: "data" (data.sheet, or --sheet, names the one to read)` {
+		t.Errorf("empty sheet named: %v", err)
+	}
+	// The name as the workbook spells it, whatever the plan's case.
+	d, err = read(hiddenFirst, "DATA")
+	if err != nil || d.Sheet.Name != "data" {
+		t.Errorf("sheet named in other case: %v %+v", err, d)
+	}
+}
+
+// Hidden rows are read, as the data they are, and counted.
+func TestWorkbookHiddenRows(t *testing.T) {
+	raw := sheetsBook(t, bookSheet{name: "s", rows: sheetData, hiddenRows: []int{2, 4}})
+	d, err := readBytes(raw, "b.xlsx", sheetOpt)
+	if err != nil || d.N != 4 || d.Sheet.HiddenRows != 2 {
+		t.Fatalf("%v %+v %+v, want 4 rows, 2 of them hidden", err, d, d.Sheet)
+	}
+	if got, want := d.Sheet.HiddenRowsNote(), "2 of the rows read are hidden in the sheet"; !strings.HasPrefix(got, want) {
+		t.Errorf("note %q, want it to start %q", got, want)
+	}
+}
+
+// A workbook's number cells are numbers under data.decimal: comma (the
+// setting of CSV files beside it); its text cells follow the setting.
+func TestWorkbookNumbersUnderDecimalComma(t *testing.T) {
+	raw := sheetsBook(t, bookSheet{name: "s", rows: [][]any{{"y", "a", "b"}, {1, 0.5, "3,5"}, {2, 1.25e-7, "1"}, {1, 2.0, "2,25"}}})
+	opt := Options{Outcome: "y", Predictors: []string{"a", "b"}, Dialect: Dialect{DecimalComma: true}}
+	d, err := readBytes(raw, "b.xlsx", opt)
+	if err != nil || d.X[0] != 0.5 || d.X[1] != 3.5 || d.X[2] != 1.25e-7 || d.X[5] != 2.25 {
+		t.Errorf("decimal comma: %v %+v", err, d)
+	}
+	d, err = readBytes(raw, "b.xlsx", Options{Outcome: "y", Predictors: []string{"a"}})
+	if err != nil || d.X[0] != 0.5 || d.X[1] != 1.25e-7 {
+		t.Errorf("decimal point: %v %+v", err, d)
+	}
+}
+
+// A table that starts at a later column (B2) is read, its cells named
+// where they are; a cell right of the table names itself and its value;
+// a title above the table (a header of one name) points to the header
+// row's key.
+func TestWorkbookTableLayout(t *testing.T) {
+	raw := sheetsBook(t, bookSheet{name: "s", at: "C2", rows: [][]any{{"y", "a"}, {1, 0.5}, {2, "x"}, {1, 2.5}}})
+	_, err := readBytes(raw, "b.xlsx", sheetOpt)
+	if err == nil || !strings.HasPrefix(err.Error(), `b.xlsx:4: column "a": value "x" is not a number`) {
+		t.Errorf("table at C2: %v", err)
+	}
+	raw = sheetsBook(t, bookSheet{name: "s", at: "C2", rows: [][]any{{"y", "a"}, {1, 0.5}, {2, 1.0}, {1, 2.5}}})
+	if d, err := readBytes(raw, "b.xlsx", sheetOpt); err != nil || d.N != 3 || d.X[1] != 1 {
+		t.Errorf("table at C2: %v %+v", err, d)
+	}
+	raw = sheetsBook(t, bookSheet{name: "s", at: "B1", rows: [][]any{{"y", "a"}, {1, 0.5}, {2, 1.0, nil, "note: n=3"}, {1, 2.5}}})
+	_, err = readBytes(raw, "b.xlsx", sheetOpt)
+	if err == nil || err.Error() != `b.xlsx:3: cell E3 holds "note: n=3", right of the table, whose header (row 1) names 2 columns, up to column C: if it is a note beside the data, move or delete it; if it is data, give its column a name in the header row` {
+		t.Errorf("note beside the table: %v", err)
+	}
+	raw = sheetsBook(t, bookSheet{name: "s", rows: append([][]any{{"Survey 2024"}}, sheetData...)})
+	_, err = readBytes(raw, "b.xlsx", sheetOpt)
+	if err == nil || !strings.Contains(err.Error(), `column "y": outcome column not found in the header; available columns: "Survey 2024"; the header was read from row 1 of the sheet "s": if the column names are in another row, give it with data.header_row`) {
+		t.Errorf("title above the table: %v", err)
+	}
+	raw = sheetsBook(t, bookSheet{name: "s", rows: [][]any{{"Survey 2024"}, {"y", "a"}, {1, 0.5}}})
+	_, err = readBytes(raw, "b.xlsx", Options{Outcome: "Survey 2024"})
+	if err == nil || !strings.Contains(err.Error(), `b.xlsx:2: cell B2 holds "a", right of the header read from row 1, which holds one name, "Survey 2024": if that is a title above the table, give the row of the column names with data.header_row`) {
+		t.Errorf("title above the table, as the header: %v", err)
+	}
+	raw = sheetsBook(t, bookSheet{name: "s", rows: [][]any{{nil, "y", "a"}, {1, 1, 0.5}}})
+	_, err = readBytes(raw, "b.xlsx", sheetOpt)
+	if err == nil || err.Error() != `b.xlsx:1: header: column 1 (cell A1) has no name, and cells below it are filled: name it` {
+		t.Errorf("unnamed column: %v", err)
+	}
+}
