@@ -223,7 +223,9 @@ func toWorkbook(t *testing.T, raw []byte) []byte {
 // the hashes of the files as read.
 func TestWorkbookGivesIdenticalDecisions(t *testing.T) {
 	raw := exampleData(t, "quietstreets.csv")
-	csv := dialectDecisions(t, t.TempDir(), "d.csv", raw, "  sheet: survey\n  header_row: 1\n")
+	// Two lines as the workbook's keys take, so that the rules keep their
+	// lines (data.sheet and data.header_row are refused without a workbook).
+	csv := dialectDecisions(t, t.TempDir(), "d.csv", raw, "  # a CSV file: no sheet\n  # and its header on line 1\n")
 	book := dialectDecisions(t, t.TempDir(), "d.xlsx", toWorkbook(t, raw), "  sheet: survey\n  header_row: 3\n")
 	sameDecisions(t, "the CSV file and the workbook", csv, book)
 }
@@ -289,7 +291,9 @@ func toParquet(t *testing.T, raw []byte) []byte {
 // through ordplan run, but for the hashes of the files as read.
 func TestParquetGivesIdenticalDecisions(t *testing.T) {
 	raw := exampleData(t, "quietstreets.csv")
-	csv := dialectDecisions(t, t.TempDir(), "d.csv", raw, "")
+	// Two lines as the workbook's keys take, so that the rules keep their
+	// lines (data.sheet and data.header_row are refused without a workbook).
+	csv := dialectDecisions(t, t.TempDir(), "d.csv", raw, "  # a CSV file: no sheet\n  # and its header on line 1\n")
 	pq := dialectDecisions(t, t.TempDir(), "d.parquet", toParquet(t, raw), "")
 	sameDecisions(t, "the CSV file and the Parquet file", csv, pq)
 }
@@ -479,7 +483,7 @@ func TestPartsGiveIdenticalDecisions(t *testing.T) {
 		j := bytes.Index(b[i:], []byte("\n  },\n"))
 		return append(append([]byte{}, b[:i]...), b[i+j:]...)
 	}
-	want := run("all.csv", "  sheet: survey\n  header_row: 3\n")
+	want := run("all.csv", "  # a CSV file: no sheet\n  # and its header on line 1\n") // the parts' plan's lines
 	got := run("", "  parts: [parts/*.csv, extra/p4.parquet, extra/p5.xlsx]\n  sheet: survey\n  header_row: 3\n")
 	sameDecisions(t, "the concatenated file and the parts", want, got)
 }

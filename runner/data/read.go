@@ -221,7 +221,7 @@ func (r *reader) names() ([]string, map[string]int, error) {
 		n := strings.TrimSpace(h)
 		if n == "" {
 			if ref := cellName(r.cr, i); ref != "" {
-				return nil, nil, r.fail(line, "", "header: column %d (cell %s) has no name, and cells below it are filled: name it", i+1, ref)
+				return nil, nil, r.fail(line, "", "header: column %d (cell %s) has no name: name it (or, if the column holds nothing, delete it)", i+1, ref)
 			}
 			return nil, nil, r.fail(line, "", "header: column %d has no name", i+1)
 		}

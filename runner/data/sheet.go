@@ -110,7 +110,7 @@ func chooseSheet(f *excelize.File, named string) (sheet string, hidden bool, msg
 	case len(hiddenFilled) > 0:
 		return "", false, fmt.Sprintf("workbook's visible sheets are empty; only hidden sheets hold cells (%s), and a hidden sheet is read only when named: if it holds the data, name it with data.sheet (ordplan fit and ordplan init: --sheet)", quoteList(hiddenFilled))
 	}
-	return "", false, fmt.Sprintf("workbook's sheets are all empty (%s)", quoteList(sheets))
+	return "", false, fmt.Sprintf("workbook is empty: no sheet has a filled cell (its sheets: %s)", quoteList(sheets))
 }
 
 // holdsCells reports whether a worksheet has a filled cell (a formatted

@@ -108,6 +108,10 @@ func TestWorkbookSheetChoice(t *testing.T) {
 	if err == nil || err.Error() != `b.xlsx: sheet "front" is empty; the workbook's other sheets: "data" (data.sheet, or --sheet, names the one to read)` {
 		t.Errorf("empty sheet named: %v", err)
 	}
+	_, err = read(sheetsBook(t, bookSheet{name: "front"}), "")
+	if err == nil || err.Error() != `b.xlsx: workbook is empty: no sheet has a filled cell (its sheets: "front")` {
+		t.Errorf("empty workbook: %v", err)
+	}
 	// The name as the workbook spells it, whatever the plan's case.
 	d, err = read(hiddenFirst, "DATA")
 	if err != nil || d.Sheet.Name != "data" {
@@ -173,7 +177,7 @@ func TestWorkbookTableLayout(t *testing.T) {
 	}
 	raw = sheetsBook(t, bookSheet{name: "s", rows: [][]any{{nil, "y", "a"}, {1, 1, 0.5}}})
 	_, err = readBytes(raw, "b.xlsx", sheetOpt)
-	if err == nil || err.Error() != `b.xlsx:1: header: column 1 (cell A1) has no name, and cells below it are filled: name it` {
+	if err == nil || err.Error() != `b.xlsx:1: header: column 1 (cell A1) has no name: name it (or, if the column holds nothing, delete it)` {
 		t.Errorf("unnamed column: %v", err)
 	}
 }
