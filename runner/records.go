@@ -394,7 +394,7 @@ func RunJSON(r *Result, madeBy string, files map[string][]byte) ([]byte, error) 
 	data := withSheet(dataRef(r), r)
 	rec := RunRecord{Program: "ordplan", Version: r.Version,
 		Plan: PlanRef{File: filepath.Base(r.Plan.Path), Title: r.Plan.Title, SHA256: r.Plan.Hash},
-		Data: &data, NewRows: newRowsRef(r), Imputed: r.Imputed, Seed: r.Plan.Seed}
+		Data: &data, NewRows: newRowsSheet(newRowsRef(r), r), Imputed: r.Imputed, Seed: r.Plan.Seed}
 	rec.Timestamp = r.Started
 	for _, or := range r.Outcomes {
 		if or.Imputed != nil && or.Imputed.Chained != nil {
@@ -435,6 +435,22 @@ func newRowsRef(r *Result) *DataRef {
 		return nil
 	}
 	return &DataRef{File: r.Plan.Inference.Predict, SHA256: r.NewRowsHash}
+}
+
+// newRowsSheet is ref (newRowsRef) with the worksheet the new rows were
+// read from when the file is a workbook, for run.json.
+func newRowsSheet(ref *DataRef, r *Result) *DataRef {
+	if ref == nil {
+		return nil
+	}
+	for _, or := range r.Outcomes {
+		if nr := or.NewRows; nr != nil && nr.Rows != nil && nr.Rows.Sheet != nil {
+			s := nr.Rows.Sheet
+			ref.Sheet, ref.SheetHidden, ref.HiddenRows = s.Name, s.Hidden, s.HiddenRows
+			break
+		}
+	}
+	return ref
 }
 
 // dataRef is the record of the data a run read: the file and its hash, or

@@ -376,6 +376,12 @@ func TestNewRowsInEveryFormat(t *testing.T) {
 		if c.name == "new.xlsx" && byName["line"][0] != "4" {
 			t.Errorf("%s: the first row is on line %s, want the sheet row 4", c.name, byName["line"][0])
 		}
+		if rj, _ := os.ReadFile(filepath.Join(out, "run.json")); c.name == "new.xlsx" && !bytes.Contains(rj, []byte(`"sha256": "`+HashHex(c.data)+`",`+"\n"+`    "sheet": "survey"`)) {
+			t.Errorf("%s: run.json does not name the new rows' sheet:\n%s", c.name, rj)
+		}
+		if md, _ := os.ReadFile(filepath.Join(out, "report.md")); c.name == "new.xlsx" && !bytes.Contains(md, []byte("rows of `new.xlsx`, sheet \"survey\" (")) {
+			t.Errorf("%s: the report does not name the new rows' sheet", c.name)
+		}
 		if rj, _ := os.ReadFile(filepath.Join(out, "run.json")); !bytes.Contains(rj, []byte(HashHex(c.data))) {
 			t.Errorf("%s: run.json lacks the hash of the new rows as read", c.name)
 		}
@@ -771,5 +777,65 @@ report:
 			continue
 		}
 		sameDecisions(t, fmt.Sprintf("case 1 and case %d (%s)", i+1, c.file), want, got)
+	}
+}
+
+// A workbook whose hidden first sheet holds an old draft is read from its
+// one visible sheet with cells, never the hidden one; run.json, the
+// report's data section and ordplan fit name the sheet read and count
+// the rows read that the sheet hides (they are data).
+func TestWorkbookSheetNamedInOutputs(t *testing.T) {
+	raw := exampleData(t, "quietstreets.csv")
+	lines := strings.Split(strings.TrimSpace(string(raw)), "\n")
+	f := excelize.NewFile()
+	defer f.Close()
+	f.SetSheetName("Sheet1", "draft")
+	f.SetCellValue("draft", "A1", "safety")
+	f.SetCellValue("draft", "A2", "an old draft")
+	if _, err := f.NewSheet("data"); err != nil {
+		t.Fatal(err)
+	}
+	for i, ln := range lines {
+		for j, c := range strings.Split(ln, ",") {
+			cell, _ := excelize.CoordinatesToCellName(j+1, i+1)
+			if v, err := strconv.ParseFloat(c, 64); err == nil && i > 0 {
+				f.SetCellValue("data", cell, v)
+			} else if c != "" {
+				f.SetCellValue("data", cell, c)
+			}
+		}
+	}
+	f.SetRowVisible("data", 5, false)
+	f.SetRowVisible("data", 9, false)
+	f.SetActiveSheet(1)
+	if err := f.SetSheetVisible("draft", false); err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	var b bytes.Buffer
+	if err := f.Write(&b); err != nil {
+		t.Fatal(err)
+	}
+	os.WriteFile(filepath.Join(dir, "d.xlsx"), b.Bytes(), 0o644)
+	p := dialectPlan(t, dir, "d.xlsx", "")
+	out := filepath.Join(dir, "out")
+	if stdout, stderr, code := runCLI("run", p, "--out", out, "--quiet"); code != 0 {
+		t.Fatalf("exit %d: %s %s", code, stdout, stderr)
+	}
+	rj, _ := os.ReadFile(filepath.Join(out, "run.json"))
+	if !bytes.Contains(rj, []byte(`"sheet": "data"`)) || !bytes.Contains(rj, []byte(`"hidden_rows_read": 2`)) || bytes.Contains(rj, []byte("sheet_hidden")) {
+		t.Errorf("run.json does not name the sheet read and its hidden rows:\n%s", rj)
+	}
+	md, _ := os.ReadFile(filepath.Join(out, "report.md"))
+	if want := `The rows were read from the workbook's sheet "data". 2 of the rows read are hidden in the sheet`; !bytes.Contains(md, []byte(want)) {
+		t.Errorf("report.md lacks %q", want)
+	}
+	stdout, stderr, code := runCLI("fit", "--data", filepath.Join(dir, "d.xlsx"), "--outcome", "safety", "--categories", "very_unsafe,unsafe,neutral,safe,very_safe", "--predictors", "pilot,female,age")
+	if want := `d.xlsx, sheet "data": `; code != 0 || !strings.Contains(stdout, want) || !strings.Contains(stdout, "; 2 of the rows read are hidden in the sheet") {
+		t.Errorf("ordplan fit: exit %d, want %q and the hidden rows in its Data line:\n%s%s", code, want, stdout, stderr)
+	}
+	stdout, stderr, code = runCLI("fit", "--data", filepath.Join(dir, "d.xlsx"), "--sheet", "draft", "--outcome", "safety", "--predictors", "age")
+	if code != 1 || !strings.Contains(stderr, `column "age": predictor column not found in the header`) {
+		t.Errorf("ordplan fit --sheet draft: exit %d: %s%s", code, stdout, stderr)
 	}
 }

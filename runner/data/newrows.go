@@ -25,6 +25,9 @@ type Rows struct {
 	// are missing there (in the order of the columns read).
 	SkippedColumns [][]string
 	SHA256         string // hex SHA-256 of the file's bytes
+	// Sheet names the worksheet of a workbook the rows come from (nil for
+	// other files).
+	Sheet *SheetRead
 	// Fails lists, per kept row, the subset conditions (Options.Keep, by
 	// index) the row fails, as the data's reader decides; Undecided those
 	// it cannot be checked against (its cell there is missing); Unchecked
@@ -190,6 +193,10 @@ func LoadNewRows(path string, predictors []string, levels map[string][]string, o
 	}
 	if rs.RowsRead == 0 {
 		return nil, &Error{File: path, Msg: "no data rows after the header"}
+	}
+	if sr, ok := cr.(*sheetRecords); ok {
+		read := sr.read
+		rs.Sheet = &read
 	}
 	return rs, nil
 }
