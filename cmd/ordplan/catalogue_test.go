@@ -16,7 +16,6 @@ import (
 
 	"encoding/json"
 	"fmt"
-	"io"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -27,6 +26,7 @@ import (
 	"strings"
 	"testing"
 
+	"ordplan/internal/zipparts"
 	"ordplan/runner/data"
 
 	"github.com/parquet-go/parquet-go"
@@ -379,39 +379,20 @@ func formulaWorkbook(t *testing.T) []byte {
 // <v> in a cell that is not of type str.
 func emptyValueFormula(t *testing.T, raw []byte) []byte {
 	t.Helper()
-	zr, err := zip.NewReader(bytes.NewReader(raw), int64(len(raw)))
-	if err != nil {
-		t.Fatal(err)
-	}
-	var b bytes.Buffer
-	zw := zip.NewWriter(&b)
-	for _, f := range zr.File {
-		rc, err := f.Open()
-		if err != nil {
-			t.Fatal(err)
-		}
-		body, err := io.ReadAll(rc)
-		rc.Close()
-		if err != nil {
-			t.Fatal(err)
-		}
-		if f.Name == "xl/worksheets/sheet1.xml" {
-			old := []byte(`<c r="B3" t="str"><f>A3/4</f>`)
+	old := []byte(`<c r="B3" t="str"><f>A3/4</f>`)
+	out, err := zipparts.Rewrite(raw, func(name string, body []byte) ([]byte, *zip.FileHeader) {
+		if name == "xl/worksheets/sheet1.xml" {
 			if !bytes.Contains(body, old) {
-				t.Fatalf("%s has no %s", f.Name, old)
+				t.Fatalf("%s has no %s", name, old)
 			}
 			body = bytes.Replace(body, old, []byte(`<c r="B3"><f>A3/4</f><v></v>`), 1)
 		}
-		w, err := zw.Create(f.Name)
-		if err != nil {
-			t.Fatal(err)
-		}
-		w.Write(body)
-	}
-	if err := zw.Close(); err != nil {
+		return body, nil
+	})
+	if err != nil {
 		t.Fatal(err)
 	}
-	return b.Bytes()
+	return out
 }
 
 // sheetsWorkbook is a workbook of a sheet of notes, a sheet "data" of y,

@@ -5,11 +5,12 @@ import (
 	"bytes"
 	"compress/flate"
 	"hash/crc32"
-	"io"
 	"strings"
 	"testing"
 
 	"github.com/xuri/excelize/v2"
+
+	"ordplan/internal/zipparts"
 )
 
 // formulaBook is a workbook (written by excelize, which computes no
@@ -106,51 +107,21 @@ func withPartXML(t *testing.T, raw []byte, part, old, new string) []byte {
 // header states (0: its own), written without checking.
 func rezip(t testing.TB, raw []byte, edit func(name string, body []byte) []byte, claim func(name string) uint64) []byte {
 	t.Helper()
-	zr, err := zip.NewReader(bytes.NewReader(raw), int64(len(raw)))
+	out, err := zipparts.Rewrite(raw, func(name string, body []byte) ([]byte, *zip.FileHeader) {
+		body = edit(name, body)
+		if claim == nil || claim(name) == 0 {
+			return body, nil
+		}
+		var z bytes.Buffer
+		fw, _ := flate.NewWriter(&z, flate.BestCompression)
+		fw.Write(body)
+		fw.Close()
+		return z.Bytes(), &zip.FileHeader{Name: name, Method: zip.Deflate, CRC32: crc32.ChecksumIEEE(body), CompressedSize64: uint64(z.Len()), UncompressedSize64: claim(name)}
+	})
 	if err != nil {
 		t.Fatal(err)
 	}
-	var b bytes.Buffer
-	zw := zip.NewWriter(&b)
-	for _, f := range zr.File {
-		rc, err := f.Open()
-		if err != nil {
-			t.Fatal(err)
-		}
-		body, err := io.ReadAll(rc)
-		rc.Close()
-		if err != nil {
-			t.Fatal(err)
-		}
-		body = edit(f.Name, body)
-		var w io.Writer
-		if c := uint64(0); claim != nil {
-			c = claim(f.Name)
-			if c != 0 {
-				var z bytes.Buffer
-				fw, _ := flate.NewWriter(&z, flate.BestCompression)
-				fw.Write(body)
-				fw.Close()
-				w, err = zw.CreateRaw(&zip.FileHeader{Name: f.Name, Method: zip.Deflate, CRC32: crc32.ChecksumIEEE(body), CompressedSize64: uint64(z.Len()), UncompressedSize64: c})
-				if err != nil {
-					t.Fatal(err)
-				}
-				body = z.Bytes()
-			}
-		}
-		if w == nil {
-			if w, err = zw.Create(f.Name); err != nil {
-				t.Fatal(err)
-			}
-		}
-		if _, err := w.Write(body); err != nil {
-			t.Fatal(err)
-		}
-	}
-	if err := zw.Close(); err != nil {
-		t.Fatal(err)
-	}
-	return b.Bytes()
+	return out
 }
 
 // A formula whose saved result is the empty text (=IF(C5="","",C5), a
