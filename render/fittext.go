@@ -163,25 +163,19 @@ func StereotypeTable(w io.Writer, r *fit.Result) error {
 	return tw.Flush()
 }
 
-// FitChecksText writes, after the table of FitTable, the odds ratios (logit
-// links), the model against its thresholds-only model with the pseudo-R2
-// measures, the Lipsitz test and, with categorical predictors, the
-// Pulkstenis-Robinson tests, one line each where it can.
-func FitChecksText(w io.Writer, r *fit.Result, c *runner.SingleChecks, level float64) error {
-	if level <= 0 || level >= 1 {
-		level = 0.95
-	}
-	if r.Model.Link == fit.Logit && len(r.Predictors) > 0 {
-		var readings []runner.ColumnReading
-		if c != nil {
-			readings = c.Readings
-		}
-		if err := oddsRatioText(w, r, readings, level); err != nil {
-			return err
-		}
-	}
+// FitChecksText writes, after the table of FitTable, the checks c of fit
+// r (nil: none): the odds ratios (logit links, c.OddsRatios), the model
+// against its thresholds-only model with the pseudo-R2 measures, the
+// Lipsitz test and, with categorical predictors, the Pulkstenis-Robinson
+// tests, one line each where it can.
+func FitChecksText(w io.Writer, r *fit.Result, c *runner.SingleChecks) error {
 	if c == nil {
 		return nil
+	}
+	if c.OddsRatios != nil {
+		if err := oddsRatioText(w, r, c.OddsRatios); err != nil {
+			return err
+		}
 	}
 	o := c.Overall
 	fmt.Fprintf(w, "\nAgainst the thresholds-only model (log-likelihood %s): %s\n", numfmt.Fixed(o.NullLogLik, 6), testText("likelihood-ratio", o.LR))
@@ -218,10 +212,9 @@ func FitChecksText(w io.Writer, r *fit.Result, c *runner.SingleChecks, level flo
 // oddsRatioText writes exp(b) of each model column with a reading of its
 // own (runner.OddsRatios, as the report decides them), what one unit of it
 // is, where it holds, and its interval; it names the terms left out.
-func oddsRatioText(w io.Writer, r *fit.Result, readings []runner.ColumnReading, level float64) error {
-	tab, err := runner.OddsRatios(r, readings, level)
-	if err != nil {
-		_, err = fmt.Fprintf(w, "\nOdds ratios not computed: %v\n", err)
+func oddsRatioText(w io.Writer, r *fit.Result, tab *runner.OddsRatiosRecord) error {
+	if tab.NotComputed != "" {
+		_, err := fmt.Fprintf(w, "\nOdds ratios not computed: %s\n", tab.NotComputed)
 		return err
 	}
 	fmt.Fprintf(w, "\n%ss, exp(b) (above 1: towards higher categories):\n", capitalize(fit.OddsRatioKind(r.Model)))
@@ -231,7 +224,7 @@ func oddsRatioText(w io.Writer, r *fit.Result, readings []runner.ColumnReading, 
 	if where {
 		head += "holds at\t"
 	}
-	fmt.Fprintf(tw, "%sboundary\tratio\t%g%% interval\n", head, 100*level)
+	fmt.Fprintf(tw, "%sboundary\tratio\t%g%% interval\n", head, 100*tab.Level)
 	for _, o := range tab.Rows {
 		at := "all"
 		if o.Boundary > 0 {
@@ -248,9 +241,10 @@ func oddsRatioText(w io.Writer, r *fit.Result, readings []runner.ColumnReading, 
 		return err
 	}
 	if len(tab.Omitted) > 0 {
-		_, err = fmt.Fprintf(w, "No odds ratio for the columns of %s: a column of a polynomial or spline basis (or a product with one), or of a term whose data column also makes another term, has no unit change of its own; their estimates are in the table above.\n", strings.Join(tab.Omitted, ", "))
+		_, err := fmt.Fprintf(w, "No odds ratio for the columns of %s: a column of a polynomial or spline basis (or a product with one), or of a term whose data column also makes another term, has no unit change of its own; their estimates are in the table above.\n", strings.Join(tab.Omitted, ", "))
+		return err
 	}
-	return err
+	return nil
 }
 
 // testText is a test in one phrase: "chi2(3) = 4.210, p = 0.2399", or why

@@ -56,6 +56,35 @@ func OddsRatios(r *fit.Result, readings []ColumnReading, level float64) (OddsRat
 	return t, nil
 }
 
+// OddsRatiosRecord is the odds ratios of `ordplan fit --json` (under
+// checks), the rows its text prints: those of OddsRatios at the level of
+// the intervals, the terms left out, or why they were not computed.
+type OddsRatiosRecord struct {
+	Level       float64        `json:"level"`
+	Rows        []OddsRatioRow `json:"rows"`
+	Omitted     []string       `json:"omitted,omitempty"`
+	NotComputed string         `json:"not_computed,omitempty"`
+}
+
+// AddOddsRatios gives the checks of the logit fit r (with predictors) its
+// odds ratios at the level of the intervals, from the readings of its
+// columns; other fits have none.
+func (c *SingleChecks) AddOddsRatios(r *fit.Result, level float64) {
+	if r.Model.Link != fit.Logit || len(r.Predictors) == 0 {
+		return
+	}
+	c.OddsRatios = &OddsRatiosRecord{Level: level, Rows: []OddsRatioRow{}}
+	tab, err := OddsRatios(r, c.Readings, level)
+	if err != nil {
+		c.OddsRatios.NotComputed = err.Error()
+		return
+	}
+	c.OddsRatios.Rows, c.OddsRatios.Omitted = tab.Rows, tab.Omitted
+	if tab.Rows == nil {
+		c.OddsRatios.Rows = []OddsRatioRow{}
+	}
+}
+
 // plainReadings reads plain numeric columns: 1 against 0 for a column
 // that takes only those values (binary[i]), per unit otherwise.
 func plainReadings(columns []string, binary []bool) []ColumnReading {

@@ -57,9 +57,12 @@ func FitOne(s SingleFit) (*fit.Result, *data.Dataset, error) {
 	return res, ld.Data, err
 }
 
-// SingleChecks is how well the model of `ordplan fit` fits: against its
-// thresholds-only model, and the goodness-of-fit tests.
+// SingleChecks is what `ordplan fit` prints after the estimates: the odds
+// ratios (logit link), how well the model fits against its thresholds-only
+// model, and the goodness-of-fit tests.
 type SingleChecks struct {
+	// OddsRatios are the odds ratios of a logit fit (AddOddsRatios).
+	OddsRatios   *OddsRatiosRecord   `json:"odds_ratios,omitempty"`
 	Overall      OverallRecord       `json:"overall_fit"`
 	Lipsitz      *fit.Lipsitz        `json:"lipsitz,omitempty"`
 	PatternSplit *PatternSplitRecord `json:"pulkstenis_robinson,omitempty"`

@@ -8,6 +8,8 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -16,9 +18,9 @@ import (
 // spline basis column), each with what it compares and where it holds,
 // and names the term left out, because both take them from
 // runner.OddsRatios. The plan below and the flags describe the same model;
-// the rows of the fit's text are compared with the report's CSV, and each
-// ratio with exp of the estimate printed by --json (the definition
-// exp(b), docs/models.md); what each change compares is checked against
+// the rows of the fit's text and of its --json (checks.odds_ratios) are
+// compared with the report's CSV, and each ratio with exp of the estimate
+// printed by --json (the definition exp(b), docs/models.md); what each change compares is checked against
 // the fitted probabilities in runner/readings_test.go.
 func TestFitOddsRatiosAsTheReport(t *testing.T) {
 	qs, err := filepath.Abs(filepath.Join("..", "..", "plans", "data", "quietstreets.csv"))
@@ -71,6 +73,21 @@ rules:
 	}
 	var rec struct {
 		Estimates map[string]float64 `json:"estimates"`
+		Checks    struct {
+			OddsRatios struct {
+				Level float64 `json:"level"`
+				Rows  []struct {
+					Predictor string  `json:"predictor"`
+					Change    string  `json:"change"`
+					HoldsAt   string  `json:"holds_at"`
+					Boundary  int     `json:"boundary"`
+					Ratio     float64 `json:"ratio"`
+					Low       float64 `json:"low"`
+					High      float64 `json:"high"`
+				} `json:"rows"`
+				Omitted []string `json:"omitted"`
+			} `json:"odds_ratios"`
+		} `json:"checks"`
 	}
 	if err := json.Unmarshal([]byte(js), &rec); err != nil {
 		t.Fatal(err)
@@ -90,6 +107,24 @@ rules:
 		row := strings.Join(strings.Fields(fmt.Sprintf("%s %s %s all %.4f [", pred, change, holds, ratio)), " ")
 		if !strings.Contains(joined, "\n"+row) {
 			t.Errorf("report row %q: no line %q in the fit's text:\n%s", r, row, text)
+		}
+	}
+	// --json holds the same rows under checks.odds_ratios, with the
+	// report's numbers (its CSV's) and the term left out.
+	jsORs := rec.Checks.OddsRatios
+	if jsORs.Level != 0.95 || len(jsORs.Rows) != len(recs)-1 || !slices.Equal(jsORs.Omitted, []string{"age.spline"}) {
+		t.Fatalf("fit --json odds ratios: %+v, want the %d rows of the report and age.spline left out", jsORs, len(recs)-1)
+	}
+	for i, r := range recs[1:] {
+		o := jsORs.Rows[i]
+		if got := []string{o.Predictor, o.Change, o.HoldsAt, strconv.Itoa(o.Boundary)}; !slices.Equal(got, r[1:5]) {
+			t.Errorf("fit --json odds ratio %d: %v, the report's %v", i, got, r[1:5])
+		}
+		for j, v := range []float64{o.Ratio, o.Low, o.High} {
+			want, err := strconv.ParseFloat(r[9+j], 64)
+			if err != nil || math.Abs(v-want) > 1e-9*math.Abs(want) {
+				t.Errorf("fit --json odds ratio %d (%s): %v, the report's %s", i, o.Predictor, v, r[9+j])
+			}
 		}
 	}
 	_, ors, _ := strings.Cut(joined, "odds ratios, exp(b)")

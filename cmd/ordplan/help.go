@@ -200,8 +200,12 @@ func printCommandHelp(w io.Writer, fs *flag.FlagSet, name string) {
 }
 
 // exampleArgs is what an example puts before the flag: the plan file for
-// commands that take one.
+// commands that take one (for init, which writes it, a file that does not
+// exist yet, so that the example runs as printed).
 func exampleArgs(c *command) string {
+	if c.name == "init" {
+		return "plans/new.yaml "
+	}
 	if strings.HasPrefix(c.args, "PLAN.yaml") {
 		return "plans/example.yaml "
 	}

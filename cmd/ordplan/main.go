@@ -426,8 +426,12 @@ func (f *fitFlags) baselineOf(res *fit.Result) (*fit.Baseline, error) {
 
 // print writes the fit as one JSON object or as the tables (below the
 // summary of the data sum), with the checks of the fit (nil when it has no
-// finite maximum); a fit over parts on queue workers prints through it too.
+// finite maximum) and their odds ratios at the level of --confidence-level,
+// the same in both; a fit over parts on queue workers prints through it too.
 func (f *fitFlags) print(stdout io.Writer, res *fit.Result, sum render.DataSummary, base *fit.Baseline, checks *runner.SingleChecks) error {
+	if checks != nil {
+		checks.AddOddsRatios(res, *f.level)
+	}
 	if *f.asJSON {
 		rec := runner.Record(res)
 		out := struct {
@@ -456,5 +460,5 @@ func (f *fitFlags) print(stdout io.Writer, res *fit.Result, sum render.DataSumma
 	if !res.OK() {
 		return nil
 	}
-	return render.FitChecksText(stdout, res, checks, *f.level)
+	return render.FitChecksText(stdout, res, checks)
 }
