@@ -20,6 +20,7 @@ func (d *decoder) check(p *Plan) {
 		}
 	}
 	d.checkSubsetLevels(p)
+	d.checkLevelMarkers(p)
 	d.checkDataOptions(p)
 	d.checkImputation(p)
 	d.checkApproaches(p)
@@ -98,10 +99,7 @@ func (d *decoder) checkColumns(p *Plan) {
 		}
 		outcomeAt[o.Column] = d.line(key)
 		for _, c := range o.Categories {
-			if slices.Contains(p.Data.MissingValues, c) {
-				ck := d.itemKey(itemPath("outcomes", i)+".categories", c)
-				d.errAt(ck, "category %s is also a missing-value marker in data.missing_values", quote(c))
-			}
+			d.checkMarker(p, o.Column, c, itemPath("outcomes", i)+".categories", "category")
 		}
 		if predOK && slices.Contains(p.SourceColumns(), o.Column) {
 			pk := d.sourceKey(p, o.Column)
@@ -121,6 +119,32 @@ func (d *decoder) checkColumns(p *Plan) {
 			d.errAt(r.key, "%s is an outcome column", quote(r.col))
 		} else if predOK && slices.Contains(p.SourceColumns(), r.col) {
 			d.errAt(r.key, "%s is also listed in predictors", quote(r.col))
+		}
+	}
+}
+
+// checkMarker refuses a declared outcome category or level v of column
+// col (listed under the key list) that is a missing-value marker in force
+// (data.MarkerClash): no cell would ever be read as v.
+func (d *decoder) checkMarker(p *Plan, col, v, list, what string) {
+	var own []string
+	ownKey := "dictionary." + col + ".missing"
+	for _, e := range p.Dictionary {
+		if e.Column == col {
+			own, ownKey = e.Missing, e.Key+".missing"
+		}
+	}
+	if why := data.MarkerClash(v, p.Data.MissingValues, own, data.MarkerKeys{Markers: "data.missing_values", Own: ownKey}); why != "" {
+		d.errAt(d.itemKey(list, v), "%s %s of column %s %s", what, quote(v), quote(col), why)
+	}
+}
+
+// checkLevelMarkers refuses declared levels of categorical columns that
+// are missing-value markers in force (checkMarker).
+func (d *decoder) checkLevelMarkers(p *Plan) {
+	for _, c := range p.Categorical {
+		for _, l := range c.Levels {
+			d.checkMarker(p, c.Column, l, c.Key+".levels", "level")
 		}
 	}
 }

@@ -158,9 +158,6 @@ func (d *decoder) checkDictionary(p *Plan) {
 			if slices.Contains(e.Values, c) {
 				d.errAt(e.Key+".missing", "%s is both an allowed value and a missing-value code", quote(c))
 			}
-			if o := p.outcomeOf(e.Column); o != nil && slices.Contains(o.Categories, c) {
-				d.errAt(e.Key+".missing", "%s is both a category and a missing-value code", quote(c))
-			}
 		}
 	}
 	for _, u := range used {

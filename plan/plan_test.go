@@ -256,7 +256,7 @@ func TestBadPlans(t *testing.T) {
 		{"duplicate category", "  - column: y\n", "  - column: y\n    categories: [low, mid, low]\n",
 			[]string{`outcomes[0].categories[2]: "low" is listed twice (first at line 6)`}},
 		{"category is a missing marker", "  file: d.csv\noutcomes:\n  - column: y\n", "  file: d.csv\n  missing_values: [NA]\noutcomes:\n  - column: y\n    categories: [low, NA, high]\n",
-			[]string{`bad.yaml:7:23: outcomes[0].categories[1]: category "NA" is also a missing-value marker in data.missing_values`}},
+			[]string{`bad.yaml:7:23: outcomes[0].categories[1]: category "NA" of column "y" is also a missing-value marker in data.missing_values: every cell "NA" is read as missing, never as this value; remove it from data.missing_values ([]), or recode the value in the data`}},
 		{"duplicate outcome", "  - column: y\n", "  - column: y\n  - column: y\n",
 			[]string{`bad.yaml:6:13: outcomes[1].column: outcome "y" is listed twice (first at line 5)`}},
 		{"outcome without column", "  - column: y\n", "  - label: Y\n",

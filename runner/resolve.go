@@ -314,6 +314,9 @@ func ResolveFit(s SingleFit) (*Analysis, error) {
 		return nil, errors.New("sampling weights need a weights column (--weights COL)")
 	}
 	spec := s.designSpec()
+	if err := s.markerClash(spec); err != nil {
+		return nil, err
+	}
 	dopt := data.Options{Outcome: s.Outcome, Categories: s.Categories,
 		Weights: s.Weights, Sampling: s.Sampling, Offset: s.Offset, Cluster: s.Cluster, Refuse: s.Refuse, Dialect: s.Dialect,
 		ColumnMissing: s.ColumnMissing}
@@ -329,6 +332,31 @@ func ResolveFit(s SingleFit) (*Analysis, error) {
 		}
 	}
 	return a, nil
+}
+
+// markerClash refuses a category of --categories or a level of a
+// categorical predictor that is a missing-value marker of ordplan fit
+// (data.MarkerClash): no cell would ever be read as it.
+func (s SingleFit) markerClash(spec design.Spec) error {
+	keys := func(col string) data.MarkerKeys {
+		return data.MarkerKeys{Own: "--missing-codes " + col + "=" + strings.Join(s.ColumnMissing[col], "/")}
+	}
+	for _, c := range s.Categories {
+		if why := data.MarkerClash(c, nil, s.ColumnMissing[s.Outcome], keys(s.Outcome)); why != "" {
+			return fmt.Errorf("--categories: category %q of column %q %s", c, s.Outcome, why)
+		}
+	}
+	for _, src := range spec.Sources {
+		if src.Cat == nil {
+			continue
+		}
+		for _, l := range src.Cat.Levels {
+			if why := data.MarkerClash(l, nil, s.ColumnMissing[src.Name], keys(src.Name)); why != "" {
+				return fmt.Errorf("--predictors: level %q of column %q %s", l, src.Name, why)
+			}
+		}
+	}
+	return nil
 }
 
 // readSources adds the raw columns a design reads to the data options,

@@ -2,6 +2,7 @@ package skeleton
 
 import (
 	"fmt"
+	"math"
 	"slices"
 	"strconv"
 	"strings"
@@ -68,6 +69,9 @@ func KindOf(p data.Profile, haveData bool) Kind {
 		what := "numeric"
 		if p.Integer {
 			what = "numeric, whole numbers"
+		}
+		if p.ThousandsPoint != "" {
+			miss += fmt.Sprintf("; its points look like thousands separators (%s beside %s): see data.decimal", p.ThousandsPoint, p.ThousandsBeside)
 		}
 		return Kind{Word: "numeric", Describe: fmt.Sprintf("%s from %s to %s%s", what, num(p.Min), num(p.Max), miss)}
 	case !p.Many && p.Distinct <= 12 && p.Distinct >= 3 && scaleLike(p.Values):
@@ -273,20 +277,26 @@ func Write(in Input) ([]byte, error) {
 				w("%s{label: null, unit: null}   # EDIT the label (levels: categorical.%s)", key, c.Name)
 			case k.Word == "binary" || k.Word == "ordered?":
 				w("%s{values: [%s], label: null, unit: null}   # EDIT the label", key, yamlList(c.Values))
-			case k.Word == "numeric" && len(c.Codes) > 0 && c.MinOther >= 0 && c.MinOther <= c.Max:
-				// -9 below values that are all 0 or more: a missing-value
-				// code, offered as the column's own (the line is to be
-				// edited anyway).
-				codes := make([]string, len(c.Codes))
-				for j, v := range c.Codes {
-					codes[j] = num(v)
+			case k.Word == "numeric" && (lowCodes(c) || topCodes(c)):
+				// -9 below values that are all 0 or more, 999 far above
+				// the others: missing-value codes, offered as the
+				// column's own (the line is to be edited anyway).
+				lo, hi := c.Min, c.Max
+				var codes, why []string
+				if lowCodes(c) {
+					lo = c.MinOther
+					low := numbers(c.Codes)
+					codes = append(codes, low...)
+					why = append(why, fmt.Sprintf("%s, %s below values that are all 0 or more", words.AndList(low), codeLike(len(low))))
 				}
-				like := "which looks like a missing-value code"
-				if len(codes) > 1 {
-					like = "which look like missing-value codes"
+				if topCodes(c) {
+					hi = c.MaxOther
+					top := numbers(c.TopCodes)
+					codes = append(codes, top...)
+					why = append(why, fmt.Sprintf("%s, %s far above the other values", words.AndList(top), codeLike(len(top))))
 				}
-				w("%s{range: [%s, %s], missing: [%s], label: null, unit: null}   # EDIT: the possible range (observed %s to %s, and %s, %s below values that are all 0 or more: check)",
-					key, num(c.MinOther), num(c.Max), yamlList(codes), num(c.MinOther), num(c.Max), words.AndList(codes), like)
+				w("%s{range: [%s, %s], missing: [%s], label: null, unit: null}   # EDIT: the possible range (observed %s to %s, and %s: check)",
+					key, num(lo), num(hi), yamlList(codes), num(lo), num(hi), strings.Join(why, "; and "))
 			case k.Word == "numeric":
 				w("%s{range: [%s, %s], label: null, unit: null}   # EDIT: the possible range (observed %s to %s)", key, num(c.Min), num(c.Max), num(c.Min), num(c.Max))
 			default:
@@ -318,6 +328,35 @@ func Write(in Input) ([]byte, error) {
 	w("  confidence_level: 0.95")
 	w("  timestamp: false        # keep reports byte-identical between runs")
 	return []byte(b.String()), nil
+}
+
+// lowCodes reports whether a numeric column holds conventional
+// missing-value codes (-9, -99, ...) below values that are all 0 or more.
+func lowCodes(c data.Profile) bool {
+	return len(c.Codes) > 0 && c.MinOther >= 0 && c.MinOther <= c.Max
+}
+
+// topCodes reports whether a numeric column holds conventional codes
+// (99, 999, ...) far above its other values (data.Profile.TopCodes).
+func topCodes(c data.Profile) bool {
+	return len(c.TopCodes) > 0 && !math.IsInf(c.MaxOther, -1) && c.MaxOther >= c.MinOther
+}
+
+// numbers writes numbers as a plan does.
+func numbers(xs []float64) []string {
+	out := make([]string, len(xs))
+	for i, x := range xs {
+		out[i] = num(x)
+	}
+	return out
+}
+
+// codeLike says that n codes look like missing-value codes.
+func codeLike(n int) string {
+	if n > 1 {
+		return "which look like missing-value codes"
+	}
+	return "which looks like a missing-value code"
 }
 
 func contains(xs []string, s string) bool {
@@ -379,6 +418,11 @@ func writeDialect(w func(string, ...any), in Input) {
 		}
 		w("  delimiter: %-12s # %s%s", d.DelimiterWord(), strings.Join(data.DelimiterWords, " | "), how)
 		w("  decimal: %-14s # %s: 1.5 or 1,5", d.DecimalWord(), strings.Join(data.DecimalWords, " | "))
+		for _, c := range in.Columns {
+			if c.ThousandsPoint != "" {
+				w("  # EDIT: the points of column %s look like thousands separators (%s beside %s), which check and run refuse: write the file's numbers without them", c.Name, c.ThousandsPoint, c.ThousandsBeside)
+			}
+		}
 	}
 }
 

@@ -147,6 +147,7 @@ func TestRead(t *testing.T) {
 				RowsRead: 7, RowsDropped: 3,
 				Dropped: []DropCount{{Column: "y", Rows: 1}, {Column: "a", Rows: 1}, {Column: "b", Rows: 1}},
 				Counts:  []float64{1, 2, 1}, Lines: []int{2, 3, 4, 8},
+				Notes: []string{"The outcome y holds the integer codes -1, 2 and 10, taken as ordered categories, lowest first; 9 integers between them do not occur (0, 1, 3, 4, 5, 6, ...), so no category stands for them, and the distance between two codes plays no part"},
 			},
 		},
 		{

@@ -2,8 +2,10 @@ package data
 
 import (
 	"bytes"
+	"encoding/csv"
 	"fmt"
 	"regexp"
+	"slices"
 	"strings"
 	"unicode/utf8"
 )
@@ -56,6 +58,14 @@ func (d Dialect) delim() rune {
 		return ','
 	}
 	return d.Delimiter
+}
+
+// mark is the decimal mark, '.' or ','.
+func (d Dialect) mark() byte {
+	if d.DecimalComma {
+		return ','
+	}
+	return '.'
 }
 
 // DelimiterWord names the dialect's delimiter as plans write it.
@@ -117,6 +127,125 @@ func thousands(whole, frac string) bool {
 	frac = strings.TrimSpace(frac)
 	digits := func(s string) bool { return strings.Trim(s, "0123456789") == "" }
 	return len(frac) == 3 && digits(frac) && len(whole) >= 1 && len(whole) <= 3 && digits(whole) && whole[0] != '0'
+}
+
+// pointEvidence gathers, over the cells of a column read as numbers with
+// a decimal point, the evidence that its points are thousands separators
+// (3.473 written for 3473 beside 313, as files written with a decimal
+// comma do): every cell with a point writes one to three digits, not
+// starting with 0, then the point and three digits (read as thousands,
+// 1,000 or more), and integers without a point, all below 1000, are
+// there too. Any other cell is evidence against, which settles it: a
+// decimal number written otherwise (1.5, 0.375, 1234.5), an integer of
+// 1000 or more written without a separator, an exponent, text. Numbers
+// written with three decimals each way (1.250 beside 2, never 0.375 nor
+// 1.25) would look the same: the check is for files whose delimiter is a
+// semicolon or a tab, as files with a decimal comma have.
+type pointEvidence struct {
+	example string // the first cell with a point
+	line    int    // its line
+	integer string // the first integer without a point
+	points  int    // cells with a point that read as thousands
+	small   int    // integers without a point, below 1000
+	against bool   // a cell no thousands separator writes so
+}
+
+// add counts a trimmed, non-missing cell on line.
+func (e *pointEvidence) add(cell string, line int) {
+	if e.against {
+		return
+	}
+	i := strings.IndexByte(cell, '.')
+	if i < 0 {
+		digits := strings.TrimPrefix(strings.TrimPrefix(cell, "-"), "+")
+		if digits == "" || strings.Trim(digits, "0123456789") != "" || len(strings.TrimLeft(digits, "0")) > 3 {
+			e.against = true
+			return
+		}
+		if e.small == 0 {
+			e.integer = cell
+		}
+		e.small++
+		return
+	}
+	whole := cell[:i]
+	if len(whole) > 0 && (whole[0] == '-' || whole[0] == '+') {
+		whole = whole[1:]
+	}
+	if !thousands(whole, cell[i+1:]) || whole != strings.TrimSpace(whole) {
+		e.against = true
+		return
+	}
+	if e.points == 0 {
+		e.example, e.line = cell, line
+	}
+	e.points++
+}
+
+// conclusive reports whether the cells added show thousands separators.
+func (e *pointEvidence) conclusive() bool { return !e.against && e.points > 0 && e.small > 0 }
+
+// pointSample is the number of data rows thousandsPoints reads before it
+// gives up on a column that shows no sign of thousands separators.
+const pointSample = 1000
+
+// thousandsPoints refuses CSV text whose delimiter is a semicolon or a
+// tab, read with a decimal point, when a column it reads as numbers
+// writes its points as thousands separators (pointEvidence): read as
+// decimal points they would be numbers a thousand times too small, with
+// no error. It reads the first pointSample rows of the text apart from
+// the rows' path, and the rest only when a column shows the sign there,
+// so that a file without it costs no more than those rows (nothing at
+// all with a comma or a decimal comma).
+func (r *reader) thousandsPoints() error {
+	d := r.opt.Dialect
+	if r.raw == nil || r.head == nil || d.DecimalComma || d.delim() == ',' {
+		return nil
+	}
+	var cols []usedCol
+	for _, c := range r.cols {
+		if r.asNumbers(c) {
+			cols = append(cols, c)
+		}
+	}
+	if len(cols) == 0 {
+		return nil
+	}
+	cr := csv.NewReader(bytes.NewReader(bytes.TrimPrefix(r.raw, utf8BOM)))
+	cr.Comma = d.delim()
+	cr.FieldsPerRecord = -1
+	cr.TrimLeadingSpace = trimsLeadingSpace(cr.Comma)
+	cr.ReuseRecord = true
+	if _, err := cr.Read(); err != nil {
+		return nil
+	}
+	ev := make([]pointEvidence, len(cols))
+	for row := 1; ; row++ {
+		rec, err := cr.Read()
+		if err != nil {
+			break // the end, or a problem the rows' path reports
+		}
+		for k, c := range cols {
+			if c.index >= len(rec) {
+				continue
+			}
+			if cell := strings.TrimSpace(rec[c.index]); !r.missingText(c.name, cell) {
+				line, _ := cr.FieldPos(c.index)
+				ev[k].add(cell, line)
+			}
+		}
+		if row == pointSample && !slices.ContainsFunc(ev, func(e pointEvidence) bool { return e.conclusive() }) {
+			return nil
+		}
+	}
+	for k, e := range ev {
+		if e.conclusive() {
+			whole := strings.Replace(e.example, ".", "", 1)
+			return r.fail(e.line, cols[k].name, "value %s looks like %s written with a thousands separator: every value of the column with a point has three digits after it and would be 1000 or more without it (%d values), and the others are integers below 1000 written without a point (%d, such as %s); a decimal point reads it as %s. Write the numbers without thousands separators (%s); or, if the points are decimal points, write the whole numbers with three decimals too (%s)",
+				quoteCell(e.example), whole, e.points, e.small, quoteCell(e.integer), e.example, whole, quoteCell(e.integer+".000"))
+		}
+	}
+	return nil
 }
 
 // checkUTF8 refuses text that is not UTF-8, from the first bytes read (a

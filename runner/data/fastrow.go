@@ -59,10 +59,7 @@ func (r *reader) newFastPlan(t *rowTally) *fastPlan {
 	if len(r.opt.Keep) > 0 {
 		return nil
 	}
-	p := &fastPlan{fields: make([]fastField, r.width), delim: byte(r.opt.Dialect.delim()), mark: '.'}
-	if r.opt.Dialect.DecimalComma {
-		p.mark = ','
-	}
+	p := &fastPlan{fields: make([]fastField, r.width), delim: byte(r.opt.Dialect.delim()), mark: r.opt.Dialect.mark()}
 	for _, c := range r.cols {
 		f := fastField{name: c.name, pos: c.pos}
 		switch c.role {

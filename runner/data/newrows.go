@@ -151,7 +151,7 @@ func LoadNewRows(path string, predictors []string, levels map[string][]string, o
 				v = float64(l)
 			} else {
 				v, msg = dialect.number(cell)
-				msg += notNumberHint(cell, msg, cellName(cr, pos[j]))
+				msg += r.notNumberHint(c, cell, msg, cellName(cr, pos[j]))
 			}
 			if msg != "" {
 				return nil, &Error{File: path, Line: line, Column: c, Msg: msg}

@@ -76,6 +76,53 @@ type Options struct {
 // Options.MissingTokens is nil.
 var DefaultMissing = []string{"", "NA", "NaN", "."}
 
+// MarkerKeys name, for a message, what sets the missing-value markers of
+// a column: Markers the list read for every column (data.missing_values;
+// "" when it cannot be set, as in ordplan fit, whose markers are
+// DefaultMissing), Own the column's own codes (dictionary.COLUMN.missing,
+// --missing-codes).
+type MarkerKeys struct{ Markers, Own string }
+
+// MarkerClash says why a declared outcome category or level v of a
+// column can never be read, "" when it can: v is one of the
+// missing-value markers in force (markers: the list for every column, nil
+// for DefaultMissing; own: the column's own codes), so every cell v is
+// read as missing (missingIn looks at the markers before the levels),
+// never as v. The text follows the value's name in a message and ends
+// with the way out. The one place that decides it: plans (plan check) and
+// the flags of ordplan fit (runner.ResolveFit) ask it.
+func MarkerClash(v string, markers, own []string, k MarkerKeys) string {
+	v = strings.TrimSpace(v)
+	for _, m := range own {
+		if strings.TrimSpace(m) == v {
+			return fmt.Sprintf("is also one of the column's own missing-value codes (%s): every cell %s is read as missing, never as this value; remove it from %s, or recode the value in the data", k.Own, quoteCell(v), k.Own)
+		}
+	}
+	given := markers != nil
+	if !given {
+		markers = DefaultMissing
+	}
+	if !slices.ContainsFunc(markers, func(m string) bool { return strings.TrimSpace(m) == v }) {
+		return ""
+	}
+	q := make([]string, 0, len(markers))
+	keep := []string{}
+	for _, m := range markers {
+		q = append(q, strconv.Quote(m))
+		if strings.TrimSpace(m) != v {
+			keep = append(keep, strconv.Quote(m))
+		}
+	}
+	list := "[" + strings.Join(keep, ", ") + "]"
+	switch {
+	case k.Markers == "":
+		return fmt.Sprintf("is also one of the missing-value markers %s of ordplan fit, which cannot change them: every cell %s is read as missing, never as this value; run a plan (ordplan init writes one) whose data.missing_values lists the markers the data use without %s, such as %s, or recode the value in the data", strings.Join(q, ", "), quoteCell(v), quoteCell(v), list)
+	case given:
+		return fmt.Sprintf("is also a missing-value marker in %s: every cell %s is read as missing, never as this value; remove it from %s (%s), or recode the value in the data", k.Markers, quoteCell(v), k.Markers, list)
+	}
+	return fmt.Sprintf("is also one of the default missing-value markers %s, in force while %s is not set: every cell %s is read as missing, never as this value; set %s to the markers the data use, without %s, such as %s, or recode the value in the data", strings.Join(q, ", "), k.Markers, quoteCell(v), k.Markers, quoteCell(v), list)
+}
+
 // role is what a used column is for.
 type role int
 

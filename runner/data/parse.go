@@ -6,6 +6,9 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"unicode/utf8"
+
+	"golang.org/x/text/unicode/norm"
 )
 
 // A boolean is the number 1 (true) or 0 (false) in a column read as
@@ -36,34 +39,75 @@ func boolText(b bool) string {
 
 // sameText reports whether a cell is the declared level (or category,
 // or subset value) s: as written, or, for a boolean word, in another of
-// its spellings (a declared TRUE is the cell true of a workbook).
-func sameText(s, cell string) bool { return boolKey(s) == boolKey(cell) }
+// its spellings (a declared TRUE is the cell true of a workbook), or in
+// another Unicode form of the same text (textKey).
+func sameText(s, cell string) bool { return textKey(s) == textKey(cell) }
 
-// boolKey is a text as sameText compares it: a boolean word as true or
-// false, any other text as it is.
-func boolKey(s string) string {
+// textKey is a text as sameText compares it: a boolean word as true or
+// false, a text beyond ASCII in its composed Unicode form (NFC: the "è"
+// of one code point, as most programs type it, and the "e" with a
+// combining accent some systems write are one text), any other text as
+// it is. Only the comparison uses it: names are printed, and the data
+// hashed, as written.
+func textKey(s string) string {
 	if v, ok := boolWord(s); ok {
 		return boolText(v == 1)
+	}
+	if !isASCII(s) {
+		return norm.NFC.String(s)
 	}
 	return s
 }
 
-// spellingsOf adds to index the other spellings of the boolean words among
-// the declared texts (each at its text's position), so that a map lookup
-// finds a cell as sameText does; a spelling that is itself declared keeps
-// its own position.
-func spellingsOf(texts []string, index map[string]int) {
-	for i, s := range texts {
-		v, ok := boolWord(s)
-		if !ok {
-			continue
-		}
-		for _, w := range boolSpellings[int(v)] {
-			if _, taken := index[w]; !taken && !slices.Contains(texts, w) {
-				index[w] = i
-			}
+// isASCII reports whether s holds only ASCII bytes.
+func isASCII(s string) bool {
+	for i := 0; i < len(s); i++ {
+		if s[i] >= utf8.RuneSelf {
+			return false
 		}
 	}
+	return true
+}
+
+// spellingsOf adds to index the other spellings of the declared texts
+// (each at its text's position), so that a map lookup finds a cell as
+// sameText does: the boolean words' other spellings, and a text beyond
+// ASCII in its composed and decomposed Unicode forms (NFC, NFD), so that
+// a file written in either form is read by the lookup alone; a spelling
+// that is itself declared keeps its own position. lookupText finds a cell
+// in yet another form.
+func spellingsOf(texts []string, index map[string]int) {
+	add := func(w string, i int) {
+		if _, taken := index[w]; !taken && !slices.Contains(texts, w) {
+			index[w] = i
+		}
+	}
+	for i, s := range texts {
+		if v, ok := boolWord(s); ok {
+			for _, w := range boolSpellings[int(v)] {
+				add(w, i)
+			}
+			continue
+		}
+		if !isASCII(s) {
+			add(norm.NFC.String(s), i)
+			add(norm.NFD.String(s), i)
+		}
+	}
+}
+
+// lookupText finds a trimmed cell in an index of declared texts and
+// their spellings (spellingsOf): as written, or, beyond ASCII, in its
+// composed form.
+func lookupText(index map[string]int, cell string) (int, bool) {
+	if i, ok := index[cell]; ok {
+		return i, true
+	}
+	if isASCII(cell) {
+		return 0, false
+	}
+	i, ok := index[norm.NFC.String(cell)]
+	return i, ok
 }
 
 var boolSpellings = [2][]string{{"false", "False", "FALSE"}, {"true", "True", "TRUE"}}
@@ -93,16 +137,54 @@ func parseNumber(cell string) (float64, string) {
 }
 
 // parseCode parses a trimmed, non-missing outcome cell as an integer
-// category code.
-func parseCode(cell string) (int64, string) {
+// category code: an integer, or a whole number written with a zero
+// fraction in the decimal mark (2.0, 2.00 for 2: a table whose integer
+// column also holds a missing value is often written so, and a Parquet
+// DOUBLE 2 reads as 2); 2.5 is no code.
+func parseCode(cell string, mark byte) (int64, string) {
 	if v, ok := boolWord(cell); ok {
 		return int64(v), ""
 	}
 	c, err := strconv.ParseInt(cell, 10, 64)
 	if err != nil {
+		if whole, ok := zeroFraction(cell, mark); ok {
+			if c, err := strconv.ParseInt(whole, 10, 64); err == nil {
+				return c, ""
+			}
+		}
 		return 0, "value " + quoteCell(cell) + " is not an integer category code (declare the categories to use text labels)"
 	}
 	return c, ""
+}
+
+// declaredCategory is the declared outcome category (its index in labels)
+// a trimmed, non-missing cell is: its text (lookupText), or an integer label written
+// with a zero fraction (2.0 for the category "2"), as parseCode reads a
+// code.
+func declaredCategory(labels map[string]int, cell string, mark byte) (int, bool) {
+	if i, ok := lookupText(labels, cell); ok {
+		return i, true
+	}
+	if whole, ok := zeroFraction(cell, mark); ok {
+		i, ok := labels[whole]
+		return i, ok
+	}
+	return 0, false
+}
+
+// zeroFraction is an integer written with a zero fraction in the decimal
+// mark ("2.0", "-3.00") without it ("2", "-3"); false for any other cell.
+func zeroFraction(cell string, mark byte) (string, bool) {
+	i := strings.IndexByte(cell, mark)
+	if i < 0 || i == len(cell)-1 || strings.Trim(cell[i+1:], "0") != "" {
+		return "", false
+	}
+	whole := cell[:i]
+	digits := strings.TrimLeft(whole, "+-")
+	if len(whole)-len(digits) > 1 || digits == "" || strings.Trim(digits, "0123456789") != "" {
+		return "", false
+	}
+	return whole, true
 }
 
 // describeMissing names a missing cell for a message.

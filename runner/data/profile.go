@@ -31,6 +31,39 @@ type Profile struct {
 	// below values that are all 0 or more look like missing values.
 	Codes    []float64
 	MinOther float64
+	// TopCodes are the conventional codes written at the top of a scale
+	// (topLikeCodes: 99, 999, 9999, 98, ...) that a numeric column holds
+	// far above its other values (MaxOther, -Inf when none, at most 0.9
+	// times the code), in order: codes above the values look like missing
+	// values too.
+	TopCodes []float64
+	MaxOther float64
+	// ThousandsPoint, of a column read as numbers with a decimal point in
+	// a file whose delimiter is a semicolon or a tab, is a cell whose
+	// point looks like a thousands separator (pointEvidence: 3.473 beside
+	// 313), and ThousandsBeside an integer written without one; "" when
+	// the column shows no such sign.
+	ThousandsPoint, ThousandsBeside string
+}
+
+// topLikeCodes are numbers that surveys conventionally write at the top
+// of a scale for a missing, refused or not applicable answer.
+var topLikeCodes = []float64{77, 88, 97, 98, 99, 777, 888, 997, 998, 999, 7777, 8888, 9997, 9998, 9999}
+
+// topCodes keeps, of the top-like codes a column holds (sorted), those
+// far above its other values, whose largest is max: at most 0.9 times the
+// code. A code not kept is one of the values, and raises max for the
+// codes above it. It returns the codes kept and the largest other value.
+func topCodes(codes []float64, max float64) ([]float64, float64) {
+	var out []float64
+	for _, c := range codes {
+		if max <= 0.9*c {
+			out = append(out, c)
+		} else if len(out) == 0 {
+			max = math.Max(max, c)
+		}
+	}
+	return out, max
 }
 
 // missingLikeCodes are numbers that surveys and registers conventionally
@@ -83,10 +116,11 @@ func (r *reader) profile() ([]Profile, error) {
 		return nil, err
 	}
 	out := make([]Profile, len(names))
+	points := make([]pointEvidence, len(names))
 	seen := make([]map[string]bool, len(names))
 	all := make([]map[string]struct{}, len(names)) // nil once past MaxCount
 	for i, n := range names {
-		out[i] = Profile{Name: n, Numeric: true, Integer: true, Min: math.Inf(1), Max: math.Inf(-1), MinOther: math.Inf(1)}
+		out[i] = Profile{Name: n, Numeric: true, Integer: true, Min: math.Inf(1), Max: math.Inf(-1), MinOther: math.Inf(1), MaxOther: math.Inf(-1)}
 		seen[i] = map[string]bool{}
 		all[i] = map[string]struct{}{}
 	}
@@ -125,13 +159,22 @@ func (r *reader) profile() ([]Profile, error) {
 					p.Numeric, p.Integer = false, false
 					continue
 				}
+				line, _ := r.cr.FieldPos(i)
+				points[i].add(cell, line)
 				p.Min, p.Max = math.Min(p.Min, v), math.Max(p.Max, v)
-				if slices.Contains(missingLikeCodes, v) {
+				switch {
+				case slices.Contains(missingLikeCodes, v):
 					if !slices.Contains(p.Codes, v) {
 						p.Codes = append(p.Codes, v)
 					}
-				} else {
+				case slices.Contains(topLikeCodes, v):
+					if !slices.Contains(p.TopCodes, v) {
+						p.TopCodes = append(p.TopCodes, v)
+					}
 					p.MinOther = math.Min(p.MinOther, v)
+				default:
+					p.MinOther = math.Min(p.MinOther, v)
+					p.MaxOther = math.Max(p.MaxOther, v)
 				}
 				if v != math.Trunc(v) {
 					p.Integer = false
@@ -170,9 +213,15 @@ func (r *reader) profile() ([]Profile, error) {
 				return strings.Compare(a, b)
 			})
 			slices.Sort(p.Codes)
+			slices.Sort(p.TopCodes)
+			p.TopCodes, p.MaxOther = topCodes(p.TopCodes, p.MaxOther)
+			if pe := points[i]; pe.conclusive() && !d.DecimalComma && d.delim() != ',' && r.head != nil {
+				p.ThousandsPoint, p.ThousandsBeside = pe.example, pe.integer
+			}
 		} else {
 			p.Min, p.Max = 0, 0
 			p.Codes, p.MinOther = nil, math.Inf(1)
+			p.TopCodes, p.MaxOther = nil, math.Inf(-1)
 		}
 	}
 	return out, nil

@@ -75,6 +75,9 @@ func readBytes(raw []byte, name string, opt Options) (*Dataset, error) {
 	if err := r.header(cols); err != nil {
 		return nil, err
 	}
+	if err := r.thousandsPoints(); err != nil {
+		return nil, err
+	}
 	if cr, ok := r.cr.(*columnRecords); ok {
 		return r.columnRows(cr)
 	}
@@ -187,11 +190,18 @@ func (r *reader) header(cols []usedCol) error {
 	}
 	r.cols = cols
 	for _, c := range cols {
-		if c.role == rolePredictor && r.opt.PredictorLevels[c.name] == nil || c.role == roleWeights || c.role == roleOffset || r.comparedAsNumbers(c.name) {
+		if r.asNumbers(c) {
 			r.readNumbers(c.name)
 		}
 	}
 	return nil
+}
+
+// asNumbers reports whether a used column's cells are read as numbers: a
+// predictor not declared categorical, weights, an offset, a column a
+// subset condition compares with a number.
+func (r *reader) asNumbers(c usedCol) bool {
+	return c.role == rolePredictor && r.opt.PredictorLevels[c.name] == nil || c.role == roleWeights || c.role == roleOffset || r.comparedAsNumbers(c.name)
 }
 
 // names reads the header line: the column names, trimmed, and where each

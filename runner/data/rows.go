@@ -8,6 +8,8 @@ import (
 	"strconv"
 	"strings"
 	"unicode"
+
+	"ordplan/internal/words"
 )
 
 // rows reads the data rows and builds the data set, in phases: the
@@ -129,6 +131,9 @@ func (r *reader) finish(t *rowTally, d *Dataset) (*Dataset, error) {
 		d.Categories = cats
 	default:
 		d.Categories = codeCategories(t.codes, d.Y)
+		if n := CodeGapNote(opt.Outcome, d.Categories); n != "" && !opt.Part {
+			d.Notes = append(d.Notes, n)
+		}
 	}
 	if err := r.tally(d); err != nil {
 		return nil, err
@@ -249,7 +254,7 @@ func (r *reader) newRowTally(K int) *rowTally {
 func (r *reader) outsideSubset(t *rowTally, rec []string) (int, error) {
 	for i, seen := range t.listSeen {
 		if seen != nil && len(seen) < maxListValues {
-			if v := boolKey(strings.TrimSpace(rec[r.cols[t.condCol[i]].index])); !seen[v] {
+			if v := textKey(strings.TrimSpace(rec[r.cols[t.condCol[i]].index])); !seen[v] {
 				seen[strings.Clone(v)] = true
 			}
 		}
@@ -310,9 +315,9 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 		switch c.role {
 		case roleOutcome:
 			if len(opt.Categories) > 0 {
-				i, ok := t.labels[cell]
+				i, ok := declaredCategory(t.labels, cell, opt.Dialect.mark())
 				if !ok {
-					msg = "value " + quoteCell(cell) + " is not one of the declared categories: " + quoteList(opt.Categories) + formulaHint(cell, ref)
+					msg = "value " + quoteCell(cell) + " is not one of the declared categories: " + quoteList(opt.Categories) + r.outcomeHint(c.name, cell, ref)
 				}
 				row.y = i
 				row.outLabel = cell
@@ -320,18 +325,21 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 					row.outLabel = opt.Categories[i] // as declared: a boolean word in any spelling
 				}
 			} else {
-				if row.code, msg = parseCode(cell); msg != "" {
-					msg += formulaHint(cell, ref)
+				if row.code, msg = parseCode(cell, opt.Dialect.mark()); msg != "" {
+					msg += r.outcomeHint(c.name, cell, ref)
 				}
 				row.outLabel = strconv.FormatInt(row.code, 10)
 			}
 		case rolePredictor:
 			if idx, cat := t.levelIndex[c.name]; cat {
-				l, ok := idx[cell]
+				l, ok := lookupText(idx, cell)
 				if !ok {
 					hint := formulaHint(cell, ref)
 					if hint == "" {
 						hint = levelHint(cell, opt.PredictorLevels[c.name], "write the levels as the data do")
+					}
+					if hint == "" {
+						hint = r.missingWordHint(c.name, cell)
 					}
 					if hint == "" {
 						hint = " (add it to the levels, or list it among the missing-value markers)"
@@ -341,15 +349,19 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 				t.xs[c.pos] = float64(l)
 			} else {
 				t.xs[c.pos], msg = r.opt.Dialect.number(cell)
-				msg += notNumberHint(cell, msg, ref)
+				msg += r.notNumberHint(c.name, cell, msg, ref)
 			}
 		case roleWeights:
 			row.w, msg = r.opt.Dialect.number(cell)
 			if msg == "" && row.w < 0 {
 				msg = "weight " + quoteCell(cell) + " is negative (weights must be zero or more; a row of weight 0 is dropped)"
+			} else if strings.HasSuffix(msg, " is not a number") {
+				msg += r.missingWordHint(c.name, cell)
 			}
 		case roleOffset:
-			row.off, msg = r.opt.Dialect.number(cell)
+			if row.off, msg = r.opt.Dialect.number(cell); strings.HasSuffix(msg, " is not a number") {
+				msg += r.missingWordHint(c.name, cell)
+			}
 		case roleCluster:
 			row.cl = cell
 		}
@@ -361,17 +373,20 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 }
 
 // notNumberHint is what follows msg, the message for a predictor's cell
-// that is not a number, to say what the cell is: a date or a time, a
-// spreadsheet's formula, merged cell or error value, or text; "" for a
-// malformed number, whose message says enough, and for any other message.
-// ref is the cell's reference in a workbook (formulaHint).
-func notNumberHint(cell, msg, ref string) string {
+// of column col that is not a number, to say what the cell is: a date or
+// a time, a word that marks a missing value, a spreadsheet's formula,
+// merged cell or error value, or text; "" for a malformed number, whose
+// message says enough, and for any other message. ref is the cell's
+// reference in a workbook (formulaHint).
+func (r *reader) notNumberHint(col, cell, msg, ref string) string {
 	if !strings.HasSuffix(msg, " is not a number") {
 		return ""
 	}
 	switch {
 	case timeHint(cell) != "":
 		return timeHint(cell)
+	case r.missingWordHint(col, cell) != "":
+		return r.missingWordHint(col, cell)
 	case isNumberLike(cell) && strings.HasSuffix(cell, "%"):
 		return "; it is a percentage: write it as a number without the percent sign (50, or 0.5 as a share)"
 	case isNumberLike(cell):
@@ -380,6 +395,65 @@ func notNumberHint(cell, msg, ref string) string {
 		return formulaHint(cell, ref)
 	}
 	return "; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)"
+}
+
+// outcomeHint is what follows the message for an outcome cell of column
+// col that is no declared category or no integer code: a spreadsheet's
+// formula or error value, a word that marks a missing value, or a
+// declared category written otherwise; "" when it is none of these. ref
+// is the cell's reference in a workbook (formulaHint).
+func (r *reader) outcomeHint(col, cell, ref string) string {
+	if h := formulaHint(cell, ref); h != "" {
+		return h
+	}
+	if h := r.missingWordHint(col, cell); h != "" {
+		return h
+	}
+	if len(r.opt.Categories) > 0 {
+		return levelHint(cell, r.opt.Categories, "write the categories as the data do")
+	}
+	return ""
+}
+
+// missingWords are, in lower case, the words data commonly write for a
+// missing value (besides the default markers, DefaultMissing).
+var missingWords = map[string]bool{
+	"na": true, "n/a": true, "n.a.": true, "n.a": true, "nan": true,
+	"null": true, "(null)": true, "none": true, "nil": true, "missing": true,
+	"unknown": true, "not available": true, "not applicable": true,
+	"-": true, "--": true, "?": true, ".": true,
+}
+
+// looksMissing reports whether a cell is a word that commonly marks a
+// missing value (missingWords, in any case, or a statistics package's
+// extended missing values .a to .z).
+func looksMissing(cell string) bool {
+	if len(cell) == 2 && cell[0] == '.' && (cell[1]|0x20) >= 'a' && (cell[1]|0x20) <= 'z' {
+		return true
+	}
+	return len(cell) <= 16 && missingWords[strings.ToLower(cell)]
+}
+
+// missingWordHint says, of a cell of column col that looks like a
+// missing-value marker (looksMissing) and is none of the markers in force,
+// how to have it read as missing; "" for any other cell.
+func (r *reader) missingWordHint(col, cell string) string {
+	if !looksMissing(cell) {
+		return ""
+	}
+	toks := r.opt.MissingTokens
+	if toks == nil {
+		toks = DefaultMissing
+	}
+	q := make([]string, 0, len(toks)+1)
+	for _, m := range append(slices.Clone(toks), cell) {
+		q = append(q, strconv.Quote(m))
+	}
+	fit := " (ordplan fit: --missing-codes " + col + "=" + cell + ")"
+	if strings.ContainsAny(col+cell, ",/=") {
+		fit = " (ordplan fit cannot give this code, which holds a comma, slash or equals sign: use a plan)"
+	}
+	return "; it looks like a missing-value marker, which is not among the markers in force: to read it as missing, set data.missing_values: [" + strings.Join(q, ", ") + "] (the markers in force and it), or list it for this column alone under dictionary." + col + ".missing" + fit
 }
 
 // intern returns one copy of a cluster id for all rows that have it, so
@@ -666,6 +740,41 @@ func codeCategories(codes []int64, y []int) []string {
 	return labels
 }
 
+// CodeGapNote says, of an outcome whose categories are the integer codes
+// its data hold (labels: their decimal texts, sorted numerically), that
+// the codes are taken as ordered categories and which integers between
+// them do not occur, when some do not (1, 2, 5: 3 and 4); "" when the
+// codes are consecutive. Each code is a category whatever the distance
+// to the next: a code that does not occur is no category, and is not
+// counted as one without rows.
+func CodeGapNote(outcome string, labels []string) string {
+	var absent []string
+	count := int64(0)
+	for i := 1; i < len(labels); i++ {
+		a, errA := strconv.ParseInt(labels[i-1], 10, 64)
+		b, errB := strconv.ParseInt(labels[i], 10, 64)
+		if errA != nil || errB != nil || b-a > 1<<20 {
+			return ""
+		}
+		for c := a + 1; c < b; c++ {
+			if count++; count <= 6 {
+				absent = append(absent, strconv.FormatInt(c, 10))
+			}
+		}
+	}
+	if count == 0 {
+		return ""
+	}
+	none := words.AndList(absent) + " do not occur"
+	switch {
+	case count == 1:
+		none = absent[0] + " does not occur"
+	case count > 6:
+		none = fmt.Sprintf("%d integers between them do not occur (%s, ...)", count, strings.Join(absent, ", "))
+	}
+	return fmt.Sprintf("The outcome %s holds the integer codes %s, taken as ordered categories, lowest first; %s, so no category stands for them, and the distance between two codes plays no part", outcome, words.AndList(labels), none)
+}
+
 // listedCodes sets y to the index of each code among Options.Codes and
 // returns their decimal labels; a code not listed is an error naming the
 // first row that has it.
@@ -820,7 +929,7 @@ func CheckListValues(file string, opt Options, seen ListValues) ([]string, error
 		k := opt.Keep[i]
 		declared := opt.PredictorLevels[k.Column]
 		for _, v := range k.Values {
-			if seen[boolKey(v)] || slices.ContainsFunc(declared, func(l string) bool { return sameText(l, v) }) {
+			if seen[textKey(v)] || slices.ContainsFunc(declared, func(l string) bool { return sameText(l, v) }) {
 				continue
 			}
 			var near []string

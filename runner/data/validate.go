@@ -185,11 +185,11 @@ func (r *reader) validateRecords(cols []ruled, ve *ValidationError) error {
 			}
 			switch {
 			case c.Outcome && c.labels != nil:
-				if _, ok := c.labels[cell]; !ok {
+				if _, ok := declaredCategory(c.labels, cell, r.opt.Dialect.mark()); !ok {
 					msg = "value " + quoteCell(cell) + " is not one of the declared categories: " + quoteList(c.Categories) + " (" + c.Key + "; the data dictionary describes the whole file, rows outside the plan's subset too)"
 				}
 			case c.Outcome:
-				if _, bad := parseCode(cell); bad != "" {
+				if _, bad := parseCode(cell, r.opt.Dialect.mark()); bad != "" {
 					msg = bad + " (" + c.Key + " leaves the categories to the data, which must then be integer codes; the data dictionary describes the whole file, rows outside the plan's subset too)"
 				}
 			case bad != "":

@@ -91,6 +91,9 @@ func PartitionFiles(paths []string, dopt data.Options) (fit.Whole, []PartitionRe
 			whole.Categories = append(whole.Categories, strconv.FormatInt(c, 10))
 			whole.Counts = append(whole.Counts, counts[c])
 		}
+		if n := data.CodeGapNote(dopt.Outcome, whole.Categories); n != "" {
+			whole.Notes = append(whole.Notes, n)
+		}
 	case len(dopt.Categories) > 0:
 		whole.Categories = dopt.Categories
 	default:
