@@ -238,6 +238,9 @@ func catalogueData(t *testing.T, dir string) {
 		"semi.csv":      "y;a;b\n1;0,5;1\n2;0,7;0\n3;0,1;1\n1;0,3;0\n",
 		"semiq.csv":     "\"y\";\"a\";\"b\"\n1;0,5;1\n2;0,7;0\n3;0,1;1\n1;0,3;0\n",
 		"thousands.csv": "y,a,b\n1,\"1,250\",1\n2,980,0\n3,\"2,100\",1\n",
+		"demixed.csv":   "y;a;b\n1;3.473;1\n2;313;0\n3;1.179;1\n1;540;0\n2;2.250;1\n3;87;0\n",
+		"naslash.csv":   "y,a,b\n1,0.5,1\n2,NULL,0\n3,0.1,1\n1,0.3,0\n2,0.7,1\n3,0.9,0\n1,0.2,1\n2,0.4,0\n",
+		"nadot.csv":     "y,a,b\n1,0.5,1\n2,0.7,n/a\n3,0.1,1\n",
 		"openquote.csv": "y,a,b\n1,0.5,1\n2,\"0.7,0\n3,0.1,1\n1,0.3,0\n",
 		"semipt.csv":    "y;a;b\n1;0.5;1\n2;0.7;0\n3;0.1;1\n",
 		"ragged.csv":    "y,a,b\n1,0.5,1\n2,0.7\n3,0.1,0\n",
@@ -592,6 +595,57 @@ func subsetAges(t *testing.T, dir, id string) {
 		fmt.Fprintf(&b, "%d,%.2f,%d,%s\n", i%3+1, float64(i*37%100)/25-2, i*7%2, age)
 	}
 	os.WriteFile(filepath.Join(dir, "subna.csv"), []byte(b.String()), 0o644)
+}
+
+// regionLevels writes region.csv: d.csv with a column g of regions EU,
+// NA (North America) and AS.
+func regionLevels(t *testing.T, dir, id string) {
+	withColumns(t, dir, "region.csv", "g", func(i int, _ []string) string { return []string{"EU", "NA", "AS"}[i%3] })
+}
+
+// floatCodes writes floatcodes.csv: d.csv with its outcome codes written
+// 2.0 and one missing, as a table whose integer column holds a missing
+// value is often written; floatcodes0.csv the same without the missing
+// one; halfcode.csv with a code 2.5; gapcodes.csv with 3 written 5.
+func floatCodes(t *testing.T, dir, id string) {
+	b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+	write := func(name string, cell func(i int, y string) string) {
+		out := []string{lines[0]}
+		for i, l := range lines[1:] {
+			y, rest, _ := strings.Cut(l, ",")
+			out = append(out, cell(i, y)+","+rest)
+		}
+		os.WriteFile(filepath.Join(dir, name), []byte(strings.Join(out, "\n")+"\n"), 0o644)
+	}
+	write("floatcodes.csv", func(i int, y string) string {
+		if i == 4 {
+			return ""
+		}
+		return y + ".0"
+	})
+	write("floatcodes0.csv", func(i int, y string) string { return y + ".0" })
+	write("halfcode.csv", func(i int, y string) string {
+		if i == 1 {
+			return "2.5"
+		}
+		return y
+	})
+	write("gapcodes.csv", func(i int, y string) string { return strings.Replace(y, "3", "5", 1) })
+}
+
+// unicodeForms writes nfd.csv: d.csv with an outcome q of words and a
+// column city, both with accents written decomposed (NFD: "e" and a
+// combining grave accent), as some systems write file contents; the plan
+// types them composed.
+func unicodeForms(t *testing.T, dir, id string) {
+	withColumns(t, dir, "nfd.csv", "q,city", func(i int, f []string) string {
+		q := map[string]string{"1": "mal", "2": "bien", "3": "tre\u0300s bien"}[f[0]]
+		return q + "," + []string{"Bern", "Zu\u0308rich", "Gene\u0300ve"}[i%3]
+	})
 }
 
 // outcomeOutside writes subout.csv: subna.csv (subsetAges) with the
@@ -1124,6 +1178,64 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`ordplan fit: --missing-codes: item 1 ("-9") is not COLUMN=CODE: give the column, then its codes separated by /, such as baseline_pain=-9 or age=-9/-99`}},
 		{id: "D35", name: "ordplan fit --missing-codes giving a column twice", args: fitArgs(d("d.csv"), "--predictors", "a,b", "--missing-codes", "a=-9,a=-99"), code: 2,
 			want: []string{`ordplan fit: --missing-codes: item 2 ("a=-99"): column "a" is given twice; give all its codes in one item, separated by / (a=-9/-99)`}},
+		{id: "D38", name: "a declared level that is a default missing-value marker", args: []string{"check"}, setup: regionLevels,
+			plan: edit("  file: d.csv\n", "  file: region.csv\n", "predictors: [a, b]", "categorical:\n  g: {levels: [EU, NA, AS]}\npredictors: [a, b, g]"), code: 1,
+			want: []string{`D38.yaml:7:20: categorical.g.levels[1]: level "NA" of column "g" is also one of the default missing-value markers "", "NA", "NaN", ".", in force while data.missing_values is not set: every cell "NA" is read as missing, never as this value; set data.missing_values to the markers the data use, without "NA", such as ["", "NaN", "."], or recode the value in the data`},
+			check: func(t *testing.T, dir, out, errs string) {
+				// The way out: the markers set without NA read the level.
+				p := filepath.Join(dir, "D38-ok.yaml")
+				os.WriteFile(p, []byte(edit("  file: d.csv\n", "  file: region.csv\n  missing_values: [\"\"]\n", "predictors: [a, b]", "categorical:\n  g: {levels: [EU, NA, AS]}\npredictors: [a, b, g]")), 0o644)
+				if out, errs, code := runCLI("check", p); code != 0 {
+					t.Errorf("with missing_values: [\"\"]: exit %d\n%s%s", code, out, errs)
+				}
+			}},
+		{id: "D38", name: "a declared level that is a missing-value marker, dropped if unobserved, at run", args: []string{"run"}, setup: regionLevels,
+			plan: edit("  file: d.csv\n", "  file: region.csv\n", "predictors: [a, b]", "categorical:\n  g: {levels: [EU, NA, AS], unobserved: drop}\npredictors: [a, b, g]"), code: 1,
+			want: []string{`categorical.g.levels[1]: level "NA" of column "g" is also one of the default missing-value markers`}},
+		{id: "D38", name: "a category in data.missing_values and a level among the column's own codes", args: []string{"check"}, setup: regionLevels,
+			plan: edit("  file: d.csv\n", "  file: region.csv\n  missing_values: [\"\", \"3\"]\n", "  - column: y\n", "  - column: y\n    categories: [\"1\", \"2\", \"3\"]\n", "predictors: [a, b]", "categorical:\n  g: {levels: [EU, NA, AS]}\npredictors: [a, b, g]\ndictionary:\n  a: {label: A}\n  b: {label: B}\n  g: {label: region, missing: [AS]}"), code: 1, lines: true,
+			want: []string{`outcomes[0].categories[2]: category "3" of column "y" is also a missing-value marker in data.missing_values: every cell "3" is read as missing, never as this value; remove it from data.missing_values ([""]), or recode the value in the data`,
+				`categorical.g.levels[2]: level "AS" of column "g" is also one of the column's own missing-value codes (dictionary.g.missing): every cell "AS" is read as missing, never as this value; remove it from dictionary.g.missing, or recode the value in the data`}},
+		{id: "D38", name: "a level that is a missing-value marker, in ordplan fit", args: fitArgs(d("region.csv"), "--predictors", "a,b,g|levels=EU/NA/AS"), setup: regionLevels, code: 1,
+			want: []string{"ordplan: --predictors: level \"NA\" of column \"g\" is also one of the missing-value markers \"\", \"NA\", \"NaN\", \".\" of ordplan fit, which cannot change them: every cell \"NA\" is read as missing, never as this value; run a plan (ordplan init writes one) whose data.missing_values lists the markers the data use without \"NA\", such as [\"\", \"NaN\", \".\"], or recode the value in the data\n"}},
+		{id: "D39", name: "points that separate thousands, in a semicolon file read with a decimal point", args: fitArgs(d("demixed.csv"), "--predictors", "a,b", "--delimiter", "semicolon"), code: 1,
+			want: []string{"ordplan: demixed.csv:2: column \"a\": value \"3.473\" looks like 3473 written with a thousands separator: every value of the column with a point has three digits after it and would be 1000 or more without it (3 values), and the others are integers below 1000 written without a point (3, such as \"313\"); a decimal point reads it as 3.473. Write the numbers without thousands separators (3473); or, if the points are decimal points, write the whole numbers with three decimals too (\"313.000\")\n"}},
+		{id: "D39", name: "points that separate thousands, at check", args: []string{"check"}, plan: edit("  file: d.csv\n", "  file: demixed.csv\n  delimiter: semicolon\n"), code: 1,
+			want: []string{`demixed.csv:2: column "a": value "3.473" looks like 3473 written with a thousands separator`}},
+		{id: "D40", name: "a word for a missing value in a numeric column", args: fitArgs(d("naslash.csv"), "--predictors", "a,b"), code: 1,
+			want: []string{"ordplan: naslash.csv:3: column \"a\": value \"NULL\" is not a number; it looks like a missing-value marker, which is not among the markers in force: to read it as missing, set data.missing_values: [\"\", \"NA\", \"NaN\", \".\", \"NULL\"] (the markers in force and it), or list it for this column alone under dictionary.a.missing (ordplan fit: --missing-codes a=NULL)\n"},
+			check: func(t *testing.T, dir, out, errs string) {
+				// The way out of ordplan fit reads it as missing.
+				if out, errs, code := runCLI(fitArgs(filepath.Join(dir, "naslash.csv"), "--predictors", "a,b", "--missing-codes", "a=NULL")...); code != 0 || !strings.Contains(out, "(a: 1)") {
+					t.Errorf("--missing-codes a=NULL: exit %d\n%s%s", code, out, errs)
+				}
+			}},
+		{id: "D40", name: "a word for a missing value holding a slash, in a plan", args: []string{"check"}, plan: edit("  file: d.csv\n", "  file: nadot.csv\n  missing_values: [\"\"]\n"), code: 1,
+			want: []string{`nadot.csv:3: column "b": value "n/a" is not a number; it looks like a missing-value marker, which is not among the markers in force: to read it as missing, set data.missing_values: ["", "n/a"] (the markers in force and it), or list it for this column alone under dictionary.b.missing (ordplan fit cannot give this code, which holds a comma, slash or equals sign: use a plan)`}},
+		{id: "D41", name: "outcome codes written with a zero fraction", args: fitArgs(d("floatcodes.csv"), "--predictors", "a,b"), setup: floatCodes, code: 0,
+			want: []string{"Outcome          y: 1 < 2 < 3 (3 categories)", "120 rows read, 119 used"},
+			check: func(t *testing.T, dir, out, errs string) {
+				want, _, _ := runCLI(fitArgs(filepath.Join(dir, "d.csv"), "--predictors", "a,b", "--json")...)
+				got, _, _ := runCLI(fitArgs(filepath.Join(dir, "floatcodes0.csv"), "--predictors", "a,b", "--json")...)
+				if want != strings.ReplaceAll(got, "floatcodes0.csv", "d.csv") {
+					t.Errorf("codes written 2.0 fit otherwise than 2:\n%s\n%s", got, want)
+				}
+				if _, errs, code := runCLI(fitArgs(filepath.Join(dir, "halfcode.csv"), "--predictors", "a,b")...); code != 1 || !strings.Contains(errs, `halfcode.csv:3: column "y": value "2.5" is not an integer category code`) {
+					t.Errorf("2.5: exit %d %s", code, errs)
+				}
+			}},
+		{id: "D41", name: "outcome codes with a gap", args: fitArgs(d("gapcodes.csv"), "--predictors", "a,b"), setup: floatCodes, code: 0,
+			want: []string{"Outcome          y: 1 < 2 < 5 (3 categories)", "The outcome y holds the integer codes 1, 2 and 5, taken as ordered categories, lowest first; 3 and 4 do not occur, so no category stands for them, and the distance between two codes plays no part"}},
+		{id: "D42", name: "levels and categories in another Unicode form than the data", args: []string{"run"}, setup: unicodeForms,
+			plan: edit("  file: d.csv\n", "  file: nfd.csv\n", "  - column: y\n", "  - column: q\n    categories: [mal, bien, très bien]\n", "predictors: [a, b]", "categorical:\n  city: {levels: [Bern, Zürich, Genève]}\npredictors: [a, b, city]"), code: 0,
+			check: func(t *testing.T, dir, out, errs string) {
+				b, err := os.ReadFile(filepath.Join(dir, "D42-out", "report.md"))
+				for _, want := range []string{"from mal to très bien", "city=Zürich"} {
+					if err != nil || !strings.Contains(string(b), want) {
+						t.Errorf("report.md lacks %q (%v)", want, err)
+					}
+				}
+			}},
 		{id: "D32", name: "missing values in a column the subset reads, with imputation", args: []string{"run"}, setup: subsetAges,
 			plan: edit("  file: d.csv\n", "  file: subna.csv\n  missing: impute\n  missing_values: [\"NA\", \"-9\"]\n", "[a, b]", "[a, b, age]") + "subset:\n  - {column: age, at_least: 18}\n", code: 0,
 			check: func(t *testing.T, dir, out, errs string) {

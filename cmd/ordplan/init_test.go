@@ -346,3 +346,55 @@ func TestInitOffersMissingCodes(t *testing.T) {
 		t.Errorf("check: exit %d\n%s%s", code, out, errs)
 	}
 }
+
+// A conventional code written at the top of a scale (99, 999, ...) far
+// above a column's other values is offered as a missing-value code too,
+// beside one below them, and the range is that of the other values; a 99
+// among values that reach 95 is a value. Invented data: 16 rows.
+func TestInitOffersTopCodes(t *testing.T) {
+	dir := t.TempDir()
+	var b strings.Builder
+	b.WriteString("grade,age,score\n")
+	for i := range 16 {
+		age := strconv.Itoa(20 + i*3)
+		switch i {
+		case 3:
+			age = "999"
+		case 7:
+			age = "-9"
+		}
+		score := 50 + i*3
+		if i == 5 {
+			score = 99
+		}
+		fmt.Fprintf(&b, "%d,%s,%d\n", 1+i%3, age, score)
+	}
+	planPath, text := initSkeleton(t, dir, b.String(), "grade")
+	hasEach(t, text,
+		`age:   {range: [20, 65], missing: ["-9", 999], label: null, unit: null}   # EDIT: the possible range (observed 20 to 65, and -9, which looks like a missing-value code below values that are all 0 or more; and 999, which looks like a missing-value code far above the other values: check)`,
+		`score: {range: [50, 99], label: null, unit: null}`,
+	)
+	if out, errs, code := runCLI("check", planPath); code != 0 || strings.Contains(out+errs, "outside") {
+		t.Errorf("check: exit %d\n%s%s", code, out, errs)
+	}
+}
+
+// A semicolon file whose numbers write thousands with a point (3.473
+// beside 313) is described so, and the plan says to remove them: check
+// refuses it as it is. Invented data: 12 rows.
+func TestInitNotesThousandsPoints(t *testing.T) {
+	dir := t.TempDir()
+	var b strings.Builder
+	b.WriteString("grade;income\n")
+	for i := range 12 {
+		fmt.Fprintf(&b, "%d;%s\n", 1+i%3, []string{"3.473", "313", "12.050", "87"}[i%4])
+	}
+	planPath, text := initSkeleton(t, dir, b.String(), "grade")
+	hasEach(t, text,
+		"#   income  numeric from 3.473 to 313; its points look like thousands separators (3.473 beside 313): see data.decimal",
+		"  # EDIT: the points of column income look like thousands separators (3.473 beside 313), which check and run refuse: write the file's numbers without them",
+	)
+	if _, errs, code := runCLI("check", planPath); code != 1 || !strings.Contains(errs, `column "income": value "3.473" looks like 3473 written with a thousands separator`) {
+		t.Errorf("check: exit %d\n%s", code, errs)
+	}
+}

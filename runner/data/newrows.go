@@ -144,7 +144,7 @@ func LoadNewRows(path string, predictors []string, levels map[string][]string, o
 				if l < 0 {
 					hint := formulaHint(cell, cellName(cr, pos[j]))
 					if hint == "" {
-						hint = levelHint(cell, lv, "write the new rows' values as the levels are written")
+						hint = levelHint(cell, lv, "level", "write the new rows' values as the levels are written")
 					}
 					msg = "value " + quoteCell(cell) + " is not one of the declared levels of this categorical predictor: " + quoteList(lv) + hint
 				}

@@ -336,7 +336,7 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 				if !ok {
 					hint := formulaHint(cell, ref)
 					if hint == "" {
-						hint = levelHint(cell, opt.PredictorLevels[c.name], "write the levels as the data do")
+						hint = levelHint(cell, opt.PredictorLevels[c.name], "level", "write the levels as the data do")
 					}
 					if hint == "" {
 						hint = r.missingWordHint(c.name, cell)
@@ -410,7 +410,7 @@ func (r *reader) outcomeHint(col, cell, ref string) string {
 		return h
 	}
 	if len(r.opt.Categories) > 0 {
-		return levelHint(cell, r.opt.Categories, "write the categories as the data do")
+		return levelHint(cell, r.opt.Categories, "category", "write the categories as the data do")
 	}
 	return ""
 }
@@ -962,9 +962,9 @@ func CheckListValues(file string, opt Options, seen ListValues) ([]string, error
 // the same letters and digits in another case or with other spaces and
 // marks ("East" for "east"); "" when it is like none. remedy ends the
 // hint: what to change.
-func levelHint(cell string, levels []string, remedy string) string {
+func levelHint(cell string, levels []string, what, remedy string) string {
 	like := func(l string) string {
-		return " (it is the level " + strconv.Quote(l) + " written otherwise; a level is read only as the plan writes it: " + remedy + ")"
+		return " (it is the " + what + " " + strconv.Quote(l) + " written otherwise; a " + what + " is read only as the plan writes it: " + remedy + ")"
 	}
 	if x, err := strconv.ParseFloat(strings.TrimSpace(cell), 64); err == nil {
 		for _, l := range levels {

@@ -1,0 +1,184 @@
+package data
+
+import (
+	"fmt"
+	"os"
+	"path/filepath"
+	"slices"
+	"strings"
+	"testing"
+
+	"golang.org/x/text/unicode/norm"
+)
+
+// Points that separate thousands in a semicolon or tab file read with a
+// decimal point are refused; points that are decimals (a digit count
+// other than three, a whole part of 0, a whole number of 1000 or more
+// without a point) are not, nor are files of other dialects.
+func TestThousandsPointsRefused(t *testing.T) {
+	semi := Dialect{Delimiter: ';'}
+	opt := func(d Dialect) Options { return Options{Outcome: "y", Predictors: []string{"a"}, Dialect: d} }
+	rows := func(delim string, cells ...string) string {
+		var b strings.Builder
+		b.WriteString("y" + delim + "a\n")
+		for i, c := range cells {
+			fmt.Fprintf(&b, "%d%s%s\n", i%3+1, delim, c)
+		}
+		return b.String()
+	}
+	for _, c := range []struct {
+		name string
+		text string
+		d    Dialect
+		want string // "" when read
+	}{
+		{"thousands beside small integers", rows(";", "3.473", "313", "1.179", "87", "NA", "12.500"), semi,
+			`t.csv:2: column "a": value "3.473" looks like 3473 written with a thousands separator: every value of the column with a point has three digits after it and would be 1000 or more without it (3 values), and the others are integers below 1000 written without a point (2, such as "313"); a decimal point reads it as 3.473. Write the numbers without thousands separators (3473); or, if the points are decimal points, write the whole numbers with three decimals too ("313.000")`},
+		{"tab-separated", rows("\t", "-3.473", "313", "1.179"), Dialect{Delimiter: '\t'}, `value "-3.473" looks like -3473 written with a thousands separator`},
+		{"three decimals below 1", rows(";", "1.250", "2", "0.375"), semi, ""},
+		{"a decimal of two digits", rows(";", "1.250", "2", "1.25"), semi, ""},
+		{"no integer without a point", rows(";", "1.250", "2.375", "3.125"), semi, ""},
+		{"an integer of 1000 or more", rows(";", "1.250", "2", "1250"), semi, ""},
+		{"an exponent", rows(";", "1.250", "2", "1e3"), semi, ""},
+		{"a comma-separated file", rows(",", "3.473", "313", "1.179"), Dialect{}, ""},
+	} {
+		_, err := Read(strings.NewReader(c.text), "t.csv", opt(c.d))
+		switch {
+		case c.want == "" && err != nil:
+			t.Errorf("%s: %v", c.name, err)
+		case c.want != "" && (err == nil || !strings.Contains(err.Error(), c.want)):
+			t.Errorf("%s: got %v, want %q", c.name, err, c.want)
+		}
+	}
+	// The first rows show the sign; a decimal beyond them settles it.
+	cells := make([]string, 0, 1500)
+	for i := range 1500 {
+		cells = append(cells, []string{"3.473", "313"}[i%2])
+	}
+	if _, err := Read(strings.NewReader(rows(";", cells...)), "t.csv", opt(semi)); err == nil || !strings.Contains(err.Error(), "(750 values), and the others are integers below 1000 written without a point (750,") {
+		t.Errorf("1500 rows: %v", err)
+	}
+	cells[1200] = "1.5"
+	if _, err := Read(strings.NewReader(rows(";", cells...)), "t.csv", opt(semi)); err != nil {
+		t.Errorf("a decimal on row 1200: %v", err)
+	}
+	// A column read as levels, and a column not used, are not judged.
+	lv := Options{Outcome: "y", Predictors: []string{"a"}, PredictorLevels: map[string][]string{"a": {"3.473", "313", "1.179"}}, Dialect: semi}
+	if _, err := Read(strings.NewReader(rows(";", "3.473", "313", "1.179")), "t.csv", lv); err != nil {
+		t.Errorf("levels: %v", err)
+	}
+}
+
+// The project's example and reference data, written with semicolons and
+// read with a decimal point, show no sign of thousands separators.
+func TestThousandsPointsSpareProjectData(t *testing.T) {
+	var files []string
+	for _, glob := range []string{"../../testdata/reference/*.csv", "../../plans/data/*.csv"} {
+		m, _ := filepath.Glob(glob)
+		files = append(files, m...)
+	}
+	if len(files) < 5 {
+		t.Fatalf("found %d files", len(files))
+	}
+	for _, f := range files {
+		b, err := os.ReadFile(f)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if strings.ContainsAny(string(b), ";\"") {
+			t.Fatalf("%s: a semicolon or a quote: rewrite the test", f)
+		}
+		path := filepath.Join(t.TempDir(), filepath.Base(f))
+		os.WriteFile(path, []byte(strings.ReplaceAll(string(b), ",", ";")), 0o644)
+		ps, err := ProfileFile(path, nil, Dialect{Delimiter: ';'})
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, p := range ps {
+			if p.ThousandsPoint != "" {
+				t.Errorf("%s: column %s: %s", f, p.Name, p.ThousandsPoint)
+			}
+		}
+	}
+}
+
+// Outcome codes written with a zero fraction (2.0, as a table whose
+// integer column has a missing value is often written) are the codes, with
+// or without declared categories, in the file's decimal mark; 2.5 is not.
+func TestZeroFractionCodes(t *testing.T) {
+	text := "y,a\n2.0,1\n1.00,2\n3,3\n,4\n2.0,5\n0.0,6\n"
+	d, err := Read(strings.NewReader(text), "t.csv", Options{Outcome: "y", Predictors: []string{"a"}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := strings.Join(d.Categories, " "); got != "0 1 2 3" || fmt.Sprint(d.Y) != "[2 1 3 2 0]" {
+		t.Errorf("categories %s, y %v", got, d.Y)
+	}
+	d, err = Read(strings.NewReader(text), "t.csv", Options{Outcome: "y", Categories: []string{"0", "1", "2", "3"}, Predictors: []string{"a"}})
+	if err != nil || fmt.Sprint(d.Y) != "[2 1 3 2 0]" {
+		t.Errorf("declared: %v %v", d, err)
+	}
+	semi := strings.NewReplacer(",", ";", ".", ",").Replace(text)
+	if d, err := Read(strings.NewReader(semi), "t.csv", Options{Outcome: "y", Predictors: []string{"a"}, Dialect: Dialect{Delimiter: ';', DecimalComma: true}}); err != nil || fmt.Sprint(d.Y) != "[2 1 3 2 0]" {
+		t.Errorf("decimal comma: %v %v", d, err)
+	}
+	if d, err := Read(strings.NewReader("y,a\n-0.0,1\n1,2\n"), "t.csv", Options{Outcome: "y", Predictors: []string{"a"}}); err != nil || d.Categories[0] != "0" {
+		t.Errorf("-0.0: %v", err)
+	}
+	for _, c := range []string{"2.5", "2.", ".0", "+-2.0", "02.0"} {
+		_, err := Read(strings.NewReader("y,a\n1,1\n"+c+",2\n"), "t.csv", Options{Outcome: "y", Categories: []string{"1", "2"}, Predictors: []string{"a"}})
+		if err == nil || !strings.Contains(err.Error(), "is not one of the declared categories") {
+			t.Errorf("%s with categories: %v", c, err)
+		}
+		if c == "02.0" {
+			continue // 02 is the code 2, as +2 is
+		}
+		_, err = Read(strings.NewReader("y,a\n1,1\n"+c+",2\n"), "t.csv", Options{Outcome: "y", Predictors: []string{"a"}})
+		if err == nil || !strings.Contains(err.Error(), "is not an integer category code") {
+			t.Errorf("%s: %v", c, err)
+		}
+	}
+}
+
+// A declared category or level is read in either Unicode form of its
+// text (composed, decomposed, or a mix), on the fast and the record path,
+// and named as declared.
+func TestUnicodeFormsAlike(t *testing.T) {
+	cats := []string{"mal", "bien", "très bien"}
+	lv := []string{"Bern", "Zürich", "Genève-Lémanique"}
+	opt := Options{Outcome: "y", Categories: cats, Predictors: []string{"c"}, PredictorLevels: map[string][]string{"c": lv}}
+	var b strings.Builder
+	b.WriteString("y,c\n")
+	for i := range 30 {
+		fmt.Fprintf(&b, "%s,%s\n", cats[i%3], lv[i%3])
+	}
+	nfc := b.String()
+	want, err := Read(strings.NewReader(nfc), "t.csv", opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// Mixed: one accent composed, the other not, in one cell: neither form.
+	mixed := strings.ReplaceAll(nfc, "Genève-Lémanique", "Genève-Le\u0301manique")
+	if norm.NFC.IsNormalString(mixed) || norm.NFD.IsNormalString(mixed) {
+		t.Fatal("the mixed text is in one form")
+	}
+	for name, text := range map[string]string{"NFD": norm.NFD.String(nfc), "mixed": mixed, "quoted NFD": strings.ReplaceAll(norm.NFD.String(nfc), "\n", "\n\"x\",Bern\n")} {
+		o := opt
+		if strings.HasPrefix(name, "quoted") {
+			o.Categories = append(slices.Clone(cats), "x")
+		}
+		got, err := Read(strings.NewReader(text), "t.csv", o)
+		if err != nil {
+			t.Fatalf("%s: %v", name, err)
+		}
+		if !strings.HasPrefix(name, "quoted") && (fmt.Sprint(got.Y) != fmt.Sprint(want.Y) || fmt.Sprint(got.X) != fmt.Sprint(want.X) || fmt.Sprint(got.Categories) != fmt.Sprint(cats)) {
+			t.Errorf("%s: y %v x %v, want %v %v", name, got.Y, got.X, want.Y, want.X)
+		}
+	}
+	// Declared in NFD, read from NFC data.
+	o := opt
+	o.Categories = []string{"mal", "bien", norm.NFD.String("très bien")}
+	if got, err := Read(strings.NewReader(nfc), "t.csv", o); err != nil || got.Categories[2] != o.Categories[2] {
+		t.Errorf("declared NFD: %v", err)
+	}
+}
