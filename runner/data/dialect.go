@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/csv"
 	"fmt"
+	"io"
 	"regexp"
 	"slices"
 	"strings"
@@ -222,8 +223,11 @@ func (r *reader) thousandsPoints() error {
 	ev := make([]pointEvidence, len(cols))
 	for row := 1; ; row++ {
 		rec, err := cr.Read()
+		if err == io.EOF {
+			break
+		}
 		if err != nil {
-			break // the end, or a problem the rows' path reports
+			return nil // a problem the rows' path reports
 		}
 		for k, c := range cols {
 			if c.index >= len(rec) {
