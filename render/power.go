@@ -239,6 +239,14 @@ func writePowerProblems(d *doc, op simulate.OutcomePower) {
 		if s.FirstFailure != "" {
 			d.p("At n = %d the first failed replicate said: %s", s.N, strings.ReplaceAll(s.FirstFailure, "\n", "; "))
 		}
+		if s.InternalErrors > 0 && s.FirstInternal != s.FirstFailure {
+			d.p("At n = %d the first replicate that met an internal error said: %s", s.N, strings.ReplaceAll(s.FirstInternal, "\n", "; "))
+		}
+	}
+	for _, s := range op.Sizes {
+		if s.InternalErrors > 0 {
+			d.p("**Internal error of ordplan: at n = %d, %d of %d replicates failed on a defect of the program, not of the plan** (counted above as a plan that could not be run). Please report it with the command line that caused it. Those replicates count as rejecting no hypothesis and choosing no model, so the power above is understated by up to their share.", s.N, s.InternalErrors, s.Failed.Of)
+		}
 	}
 }
 

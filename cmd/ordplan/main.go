@@ -16,6 +16,7 @@ import (
 	"ordplan/runner"
 	"ordplan/runner/data"
 	"ordplan/runner/fit"
+	"ordplan/runner/simulate"
 )
 
 // Exit codes.
@@ -36,7 +37,7 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 	// No panic trace reaches the user, and exit code 2 keeps its meaning.
 	defer func() {
 		if p := recover(); p != nil {
-			fmt.Fprintf(stderr, "ordplan: internal error: %v (please report it with the command line that caused it)\n", p)
+			fmt.Fprintf(stderr, "ordplan: %s\n", simulate.InternalError(p))
 			code = exitFail
 		}
 	}()

@@ -35,6 +35,25 @@ type outputLock struct {
 	path    string
 	made    []string
 	release sync.Once
+	// temps are the temporary folders the command made while holding the
+	// lock (tempDir), removed with it however the command ends: on
+	// return, on an error, on a recovered panic or on an interrupt.
+	tempMu sync.Mutex
+	temps  []string
+}
+
+// tempDir makes a temporary folder (os.MkdirTemp's pattern) that is
+// removed when the lock is released (removeLock), so that neither an
+// error nor an interrupt leaves it behind.
+func (l *outputLock) tempDir(pattern string) (string, error) {
+	dir, err := os.MkdirTemp("", pattern)
+	if err != nil {
+		return "", err
+	}
+	l.tempMu.Lock()
+	l.temps = append(l.temps, dir)
+	l.tempMu.Unlock()
+	return dir, nil
 }
 
 // lockOutput creates the output folder if needed and takes its lock, so
@@ -140,6 +159,11 @@ func (l *outputLock) removeLock() {
 		return
 	}
 	l.release.Do(func() {
+		l.tempMu.Lock()
+		for _, d := range l.temps {
+			os.RemoveAll(d)
+		}
+		l.tempMu.Unlock()
 		if l.f == nil {
 			return
 		}

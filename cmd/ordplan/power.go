@@ -83,7 +83,11 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		return fail(stderr, err)
 	}
 	defer olock.Unlock()
-	opt := simulate.PowerOptions{Sizes: ns, Replicates: *reps, Alpha: *alpha, Workers: *workers}
+	tmp, err := olock.tempDir("ordplan-power-")
+	if err != nil {
+		return fail(stderr, err)
+	}
+	opt := simulate.PowerOptions{Sizes: ns, Replicates: *reps, Alpha: *alpha, Workers: *workers, TempDir: tmp}
 	if !*quiet {
 		opt.Progress = stderrProgress(stderr)
 	}
@@ -142,7 +146,19 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 			}
 		}
 	}
-	return exitOK
+	// A replicate that met an internal error (a defect of the program)
+	// failed alone and is counted in the report; the command says so and
+	// exits 1, as an internal error of the command itself does.
+	code = exitOK
+	for _, op := range pr.Outcomes {
+		for _, s := range op.Sizes {
+			if s.InternalErrors > 0 {
+				fmt.Fprintf(stderr, "ordplan power: outcome %s, n = %d: %d of %d replicates failed on an %s; they are counted in %s as a plan that could not be run\n", op.Outcome, s.N, s.InternalErrors, s.Failed.Of, s.FirstInternal, filepath.Join(dir, "power.html"))
+				code = exitFail
+			}
+		}
+	}
+	return code
 }
 
 // mostOftenChosen names the model chosen most often, or every model tied

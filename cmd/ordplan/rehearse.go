@@ -83,11 +83,10 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
-	tmp, err := os.MkdirTemp("", "ordplan-rehearse-")
+	tmp, err := olock.tempDir("ordplan-rehearse-")
 	if err != nil {
 		return fail(stderr, err)
 	}
-	defer os.RemoveAll(tmp)
 	q := *p
 	q.Data.SetFile(simulatedFile, filepath.Join(tmp, simulatedFile))
 	if err := os.WriteFile(q.Data.Path, buf.Bytes(), 0o644); err != nil {

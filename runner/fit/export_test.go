@@ -1,6 +1,10 @@
 package fit
 
-import "testing"
+import (
+	"testing"
+
+	"gonum.org/v1/gonum/mat"
+)
 
 // StartsTally gives the external tests of this package the comparison of
 // fits with and without abandoned starts (startsTally).
@@ -20,5 +24,14 @@ func (s *StartsTally) Check(t *testing.T) {
 // RestrictionRank gives the external tests the numerical rank of the
 // covariance R V R' of the restrictions R (restrictionRank).
 func RestrictionRank(R [][]float64, V []float64) int {
-	return restrictionRank(restrictedCov(R, V, len(R[0])))
+	return restrictionRank(mustRestrictedCov(R, V, len(R[0])))
+}
+
+// mustRestrictedCov is restrictedCov of at least one restriction.
+func mustRestrictedCov(R [][]float64, V []float64, P int) *mat.SymDense {
+	M, err := restrictedCov(R, V, P)
+	if err != nil {
+		panic(err)
+	}
+	return M
 }

@@ -286,10 +286,10 @@ func waldStat(R [][]float64, theta, V []float64, clusters int) (float64, error) 
 // waldStatDiff is diff' (R V R')^-1 diff, refused when R V R' does not
 // have full rank (waldDefined; clusters as there).
 func waldStatDiff(R [][]float64, rt, V []float64, P, clusters int) (float64, error) {
-	if len(R) == 0 {
-		return 0, fmt.Errorf("no restrictions")
+	M, err := restrictedCov(R, V, P)
+	if err != nil {
+		return 0, err
 	}
-	M := restrictedCov(R, V, P)
 	if err := waldDefined(M, clusters); err != nil {
 		return 0, err
 	}

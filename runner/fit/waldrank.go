@@ -14,10 +14,20 @@ import (
 // 1e-15 of the largest; 1e-10 keeps a margin of five digits either way.
 const RankTolerance = 1e-10
 
+// errNoRestrictions refuses a Wald test of no restrictions: with two
+// outcome categories (one boundary) the slopes of a nonparallel predictor
+// are one slope, and their equality has nothing to test.
+var errNoRestrictions = fmt.Errorf("no restrictions")
+
 // restrictedCov is R V R' (q x q) for the q rows of R over the P
-// parameters of V (P x P, row-major).
-func restrictedCov(R [][]float64, V []float64, P int) *mat.SymDense {
+// parameters of V (P x P, row-major), refused for q = 0
+// (errNoRestrictions): the one check of every Wald test's rows, on one
+// data set (waldStatDiff) or pooled over imputed sets (Result.WaldDefined).
+func restrictedCov(R [][]float64, V []float64, P int) (*mat.SymDense, error) {
 	n := len(R)
+	if n == 0 {
+		return nil, errNoRestrictions
+	}
 	M := mat.NewSymDense(n, nil)
 	for i := 0; i < n; i++ {
 		for j := i; j < n; j++ {
@@ -33,7 +43,7 @@ func restrictedCov(R [][]float64, V []float64, P int) *mat.SymDense {
 			M.SetSym(i, j, s)
 		}
 	}
-	return M
+	return M, nil
 }
 
 // restrictionRank is the numerical rank of the covariance M of q
@@ -104,7 +114,11 @@ func (r *Result) WaldDefined(R [][]float64) error {
 	if len(r.Cov) != P*P {
 		return fmt.Errorf("%s has no covariance", r.Name)
 	}
-	return waldDefined(restrictedCov(R, r.Cov, P), r.Clusters)
+	M, err := restrictedCov(R, r.Cov, P)
+	if err != nil {
+		return err
+	}
+	return waldDefined(M, r.Clusters)
 }
 
 // SingularClustered says why the cluster-robust covariance of fit r is

@@ -84,11 +84,11 @@ func TestClusteredWaldNeedsClusters(t *testing.T) {
 	if vals[1] < 1e4*RankTolerance || vals[2] > 1e-4*RankTolerance {
 		t.Errorf("eigenvalues %.3g: the second should lie far above %g and the third far below", vals[:3], RankTolerance)
 	}
-	if got := restrictionRank(restrictedCov(identityRows(P), r.Cov, P)); got != 2 {
+	if got := restrictionRank(mustRestrictedCov(identityRows(P), r.Cov, P)); got != 2 {
 		t.Errorf("rank of the clustered covariance %d, want G-1 = 2", got)
 	}
 	// The numerical rank alone refuses 3 restrictions too.
-	if got := restrictionRank(restrictedCov(identityRows(P)[3:6], r.Cov, P)); got != 2 {
+	if got := restrictionRank(mustRestrictedCov(identityRows(P)[3:6], r.Cov, P)); got != 2 {
 		t.Errorf("rank of 3 restrictions %d, want 2", got)
 	}
 	two := WaldEqualSlopes(r, []string{"x1"})
@@ -148,7 +148,7 @@ func mustHypothesis(t *testing.T, text string, names []string) *Hypothesis {
 func TestClusteredWaldManyClusters(t *testing.T) {
 	r := clusteredFit(t, 60)
 	P := len(r.Estimates)
-	if got := restrictionRank(restrictedCov(identityRows(P), r.Cov, P)); got != P {
+	if got := restrictionRank(mustRestrictedCov(identityRows(P), r.Cov, P)); got != P {
 		t.Errorf("rank %d, want %d", got, P)
 	}
 	for _, names := range [][]string{{"x1"}, {"x1", "x2"}, r.Predictors} {
@@ -375,4 +375,22 @@ func fewClusterData(rng *rand.Rand, G, m int, predictors ...string) (*Data, []st
 		}
 	}
 	return d, clusters
+}
+
+// A Wald test of no restrictions (the equal slopes of a nonparallel
+// predictor with two categories, one boundary) is refused with the reason
+// "no restrictions" by every path: on one data set (WaldEqualSlopes) and
+// by the check the pooled tests make (WaldDefined); it never reaches a
+// zero-size matrix.
+func TestWaldNoRestrictions(t *testing.T) {
+	r := fitOK(t, clusteredData(t), robModel(Cumulative, false, Logit, 3, Nonparallel))
+	if err := r.WaldDefined(nil); err == nil || err.Error() != "no restrictions" {
+		t.Errorf("WaldDefined(no rows) = %v, want no restrictions", err)
+	}
+	if _, err := restrictedCov(nil, r.Cov, len(r.Estimates)); err == nil {
+		t.Error("restrictedCov of no rows: no error")
+	}
+	if w := WaldLinear(r, &Hypothesis{}); w.OK || w.Reason != "no restrictions" {
+		t.Errorf("WaldLinear of no rows: %+v", w)
+	}
 }

@@ -29,6 +29,10 @@ type PowerOptions struct {
 	// Run runs the plan on one replicate (nil: here, one fit at a time);
 	// `ordplan power --queue` sends each replicate's fits to workers.
 	Run func(*plan.Plan) (*runner.Result, error)
+	// TempDir is the folder the replicates' data files are written to,
+	// made and removed by the caller; "": a temporary folder Power makes
+	// and removes on return.
+	TempDir string
 }
 
 // Rate is a proportion of replicates with its Monte Carlo standard error
@@ -107,6 +111,12 @@ type SizeResult struct {
 	// simulated row has), with the first such message.
 	Failed       Rate   `json:"failed"`
 	FirstFailure string `json:"first_failure,omitempty"`
+	// InternalErrors counts the failed replicates whose run met an
+	// internal error of the program (a panic, recovered: a defect to
+	// report, not a property of the plan), FirstInternal the first one's
+	// message.
+	InternalErrors int    `json:"internal_errors,omitempty"`
+	FirstInternal  string `json:"first_internal_error,omitempty"`
 	// Clusters: the clusters simulated at this size and those the runs
 	// used (nil: the plan has no cluster column).
 	Clusters *SizeClusters `json:"clusters,omitempty"`
@@ -184,6 +194,7 @@ type PowerResult struct {
 // replicate is what one run gave, per outcome.
 type replicate struct {
 	err      string
+	internal bool // err is an internal error (a recovered panic)
 	kept     int // rows that meet the plan's subset (-1: none written)
 	outcomes []repOutcome
 }
@@ -226,11 +237,13 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 	if opt.Workers <= 0 {
 		opt.Workers = runtime.GOMAXPROCS(0)
 	}
-	tmp, err := os.MkdirTemp("", "ordplan-power-")
-	if err != nil {
-		return nil, err
+	tmp := opt.TempDir
+	if tmp == "" {
+		if tmp, err = os.MkdirTemp("", "ordplan-power-"); err != nil {
+			return nil, err
+		}
+		defer os.RemoveAll(tmp)
 	}
-	defer os.RemoveAll(tmp)
 	res := &PowerResult{Simulated: true, PlanFile: filepath.Base(p.Path), PlanSHA256: p.Hash, Title: p.Title, Seed: p.Seed, Link: sim.Link.String(), Generator: sim.GeneratingModel(),
 		Replicates: opt.Replicates, Alpha: opt.Alpha, Sizes: opt.Sizes, Version: runner.Version}
 	if m := p.Inference.Multiplicity; m != "" && m != plan.MultiplicityNone && len(p.Inference.Hypotheses) > 0 {
@@ -296,8 +309,22 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 	return res, nil
 }
 
-// runReplicate simulates replicate r of size n and runs the plan on it.
-func runReplicate(p *plan.Plan, sim *Sim, n, r int, path string, opt PowerOptions) replicate {
+// InternalError is the message of a replicate whose run met an internal
+// error (a panic, recovered by runReplicate): the replicate counts as
+// failed, with this message in the report and on stderr.
+func InternalError(p any) string {
+	return fmt.Sprintf("internal error: %v (please report it with the command line that caused it)", p)
+}
+
+// runReplicate simulates replicate r of size n and runs the plan on it. A
+// panic in the replicate's run (an internal error) fails the replicate
+// alone, with InternalError's message, rather than the whole study.
+func runReplicate(p *plan.Plan, sim *Sim, n, r int, path string, opt PowerOptions) (rep replicate) {
+	defer func() {
+		if e := recover(); e != nil {
+			rep = replicate{err: InternalError(e), internal: true, kept: -1}
+		}
+	}()
 	alpha := opt.Alpha
 	var buf bytes.Buffer
 	written, err := sim.WriteCounted(&buf, n, uint64(r))
@@ -384,6 +411,12 @@ func summarize(p *plan.Plan, n int, reps []replicate, oi int) SizeResult {
 			failed++
 			if sr.FirstFailure == "" {
 				sr.FirstFailure = rp.err
+			}
+			if rp.internal {
+				sr.InternalErrors++
+				if sr.FirstInternal == "" {
+					sr.FirstInternal = rp.err
+				}
 			}
 			counts["(none)"]++
 			causes["the plan could not be run on the replicate"]++

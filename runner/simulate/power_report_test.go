@@ -2,9 +2,14 @@ package simulate
 
 import (
 	"bytes"
+	"os"
 	"strconv"
 	"strings"
+	"sync"
 	"testing"
+
+	"ordplan/plan"
+	"ordplan/runner"
 )
 
 // A power study of a plan with a subset says what n is (the rows drawn,
@@ -97,5 +102,41 @@ func TestPowerSaysWhyNoModelWasChosen(t *testing.T) {
 	}
 	if large.NoModel.Count != 0 || large.EmptiedBy != nil {
 		t.Errorf("n = 400: no model %+v, causes %+v", large.NoModel, large.EmptiedBy)
+	}
+}
+
+// A replicate whose run panics (an internal error of the program) fails
+// alone: the study goes on, counts it under the failed runs with the
+// internal error's message, and leaves no temporary folder behind.
+func TestPowerReplicatePanicIsAFailedRun(t *testing.T) {
+	tmp := t.TempDir()
+	t.Setenv("TMPDIR", tmp)
+	runs := 0
+	var mu sync.Mutex
+	opt := PowerOptions{Sizes: []int{40}, Replicates: 4, Workers: 2, Run: func(q *plan.Plan) (*runner.Result, error) {
+		mu.Lock()
+		runs++
+		k := runs
+		mu.Unlock()
+		if k%2 == 0 {
+			panic("boom")
+		}
+		return runner.Run(q, runner.Options{Workers: 1, NoTermTests: true})
+	}}
+	res, err := Power(parsePlan(t, waldPlan), opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := res.Outcomes[0].Sizes[0]
+	want := InternalError("boom")
+	if s.Failed.Count != 2 || s.InternalErrors != 2 || s.FirstInternal != want || s.FirstFailure != want {
+		t.Errorf("failed %+v, internal %d %q, first %q; want 2 of 4 failed with %q", s.Failed, s.InternalErrors, s.FirstInternal, s.FirstFailure, want)
+	}
+	if !strings.Contains(want, "internal error: boom") {
+		t.Errorf("message %q does not say internal error", want)
+	}
+	// The temporary folder Power made (under TMPDIR) is gone.
+	if entries, _ := os.ReadDir(tmp); len(entries) > 0 {
+		t.Errorf("%d entries left in the temporary folder, first %s", len(entries), entries[0].Name())
 	}
 }
