@@ -195,7 +195,7 @@ type PowerResult struct {
 type replicate struct {
 	err      string
 	internal bool // err is an internal error (a recovered panic)
-	kept     int // rows that meet the plan's subset (-1: none written)
+	kept     int  // rows that meet the plan's subset (-1: none written)
 	outcomes []repOutcome
 }
 
