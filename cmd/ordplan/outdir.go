@@ -42,6 +42,19 @@ type outputLock struct {
 	temps  []string
 }
 
+// removeTemp removes the temporary folder dir and what it holds. On an
+// interrupt the command's workers may still be writing there: a file
+// written between RemoveAll's removal of the files and of the folder
+// fails it, so it is tried again (a worker cannot write once the folder
+// is gone).
+func removeTemp(dir string) {
+	for range 100 {
+		if os.RemoveAll(dir) == nil {
+			return
+		}
+	}
+}
+
 // tempDir makes a temporary folder (os.MkdirTemp's pattern) that is
 // removed when the lock is released (removeLock), so that neither an
 // error nor an interrupt leaves it behind.
@@ -161,7 +174,7 @@ func (l *outputLock) removeLock() {
 	l.release.Do(func() {
 		l.tempMu.Lock()
 		for _, d := range l.temps {
-			os.RemoveAll(d)
+			removeTemp(d)
 		}
 		l.tempMu.Unlock()
 		if l.f == nil {
