@@ -27,14 +27,20 @@ func Changes(prevDir string, cur *Decisions) ([]string, error) {
 // ReadPrevious reads the decisions record of the earlier run in prevDir
 // (the folder of --previous), so that a run can refuse a wrong folder
 // before it fits anything.
+// The folder must be an earlier run's output folder (its decisions.json);
+// a rehearsal's (its decisions.json records simulated data) is refused:
+// its invented data cannot be the earlier run of the real data.
 func ReadPrevious(prevDir string) (*Decisions, error) {
 	b, err := os.ReadFile(filepath.Join(prevDir, "decisions.json"))
 	if err != nil {
-		return nil, fmt.Errorf("--previous: %w", err)
+		return nil, fmt.Errorf("--previous: %w; --previous names the output folder of an earlier ordplan run (its --out, which holds its decisions.json)", err)
 	}
 	var prev Decisions
 	if err := json.Unmarshal(b, &prev); err != nil {
 		return nil, fmt.Errorf("--previous: %s is not a decisions record: %v", filepath.Join(prevDir, "decisions.json"), err)
+	}
+	if prev.Simulated != nil {
+		return nil, fmt.Errorf("--previous: %s holds a rehearsal on simulated data (ordplan %s; its decisions.json records simulated_data): a rehearsal's invented data cannot be the earlier run of real data; name the output folder of an earlier ordplan run, or leave --previous out", prevDir, prev.Simulated.Command)
 	}
 	return &prev, nil
 }

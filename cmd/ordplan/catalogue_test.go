@@ -1790,9 +1790,27 @@ func catalogue(dir string) (items []badInput) {
 				}
 			}},
 		{id: "O12", name: "--previous naming a folder without an earlier run", args: []string{"run", "--previous", "no-such-run"}, plan: goodPlan, code: 1,
-			want: []string{"ordplan: --previous: open no-such-run/decisions.json: no such file or directory"},
+			want: []string{"ordplan: --previous: open no-such-run/decisions.json: no such file or directory; --previous names the output folder of an earlier ordplan run (its --out, which holds its decisions.json)"},
 			check: func(t *testing.T, dir, out, errs string) {
 				if _, err := os.Stat(filepath.Join(dir, "O12-out")); !os.IsNotExist(err) {
+					t.Errorf("the run went on to its output folder: %v", err)
+				}
+			}},
+		// A rehearsal's folder holds a decisions.json too, of invented
+		// data: it is no earlier run of the real data.
+		{id: "R8", name: "--previous naming the output folder of ordplan rehearse", args: []string{"run", "--previous", filepath.Join(dir, "R8-rehearsal")}, plan: goodPlan, code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				src := filepath.Join(dir, id+"-rehearsed.yaml")
+				if err := os.WriteFile(src, []byte(goodPlan+assumed("{a: 0.2}", "")), 0o644); err != nil {
+					t.Fatal(err)
+				}
+				if _, errs, code := runCLI("rehearse", src, "--out", filepath.Join(dir, id+"-rehearsal"), "--quiet"); code != 0 {
+					t.Fatalf("rehearse: exit %d: %s", code, errs)
+				}
+			},
+			want: []string{"ordplan: --previous: R8-rehearsal holds a rehearsal on simulated data (ordplan rehearse; its decisions.json records simulated_data): a rehearsal's invented data cannot be the earlier run of real data; name the output folder of an earlier ordplan run, or leave --previous out"},
+			check: func(t *testing.T, dir, out, errs string) {
+				if _, err := os.Stat(filepath.Join(dir, "R8-out")); !os.IsNotExist(err) {
 					t.Errorf("the run went on to its output folder: %v", err)
 				}
 			}},
