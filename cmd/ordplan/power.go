@@ -29,7 +29,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 	workers := fs.Int("workers", 0, "replicates run at once (default: all cores); results do not depend on it")
 	quiet := fs.Bool("quiet", false, "no progress lines")
 	qf := addQueueFlags(fs, "run each replicate's fits on ordplan worker processes through the JetStream server at this NATS URL", true)
-	allow := fs.Bool("allow-unregistered-changes", false, "simulate although the plan departs from its frozen form without a stated reason (run.json records it)")
+	allow := fs.Bool("allow-unregistered-changes", false, "simulate although the plan departs from its frozen form without a stated reason (the power report says so in its first lines, UNREGISTERED CHANGES, and run.json records it)")
 	planPath, stop, code := planArg(fs, args, powerUsage, stderr)
 	if stop {
 		return code
