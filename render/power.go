@@ -54,7 +54,7 @@ func PowerOutputs(pr *simulate.PowerResult, reg *lock.Status) (map[string][]byte
 		writeFewClusters(d, pr)
 	}
 	writePowerSizes(d, pr)
-	d.p("Every rate is a share of the %d replicates of a size, with its Monte Carlo standard error sqrt(p(1-p)/R) in brackets.", pr.Replicates)
+	d.p("Every rate is a share of the %d replicates of a size, with its Monte Carlo standard error sqrt(p(1-p)/R) in brackets; where no replicate or every one counts, that error is 0 and the bracket gives instead the count and the exact one-sided 95%% confidence bound of the rate (Clopper-Pearson: below 1 - 0.05^(1/R), or above 0.05^(1/R)).", pr.Replicates)
 	for _, op := range pr.Outcomes {
 		d.h(2, "Outcome "+mdCode(op.Outcome))
 		writePowerHypotheses(d, op)
@@ -91,9 +91,8 @@ func powerTests(pr *simulate.PowerResult) string {
 	return fmt.Sprintf(" As in the plan's run (inference.multiplicity: %s), a hypothesis counts as rejected when its p-value adjusted by %s over every hypothesis of every outcome, each in its chosen model, is below alpha.", pr.Multiplicity, runner.MultiplicityName(pr.Multiplicity))
 }
 
-func fmtRate(r simulate.Rate) string {
-	return fmt.Sprintf("%.3f (%.3f)", r.Rate, r.SE)
-}
+// fmtRate writes a rate in a table of the report (simulate.Rate.Text).
+func fmtRate(r simulate.Rate) string { return r.Text("") }
 
 func writePowerHypotheses(d *doc, op simulate.OutcomePower) {
 	if len(op.Sizes) == 0 || len(op.Sizes[0].Hypotheses) == 0 {

@@ -78,7 +78,7 @@ func TestPowerReportSubsetAndNoModel(t *testing.T) {
 	for _, w := range []string{
 		"A sample size n is the number of rows drawn from the assumptions, before the plan's subset (age >= 45); the plan analyses only the rows the subset keeps. The subset kept, per replicate, on average (smallest to largest): n = 40: 18.5 (18 to 20); n = 300: 148.8 (142 to 158).",
 		"| No model chosen because | n = 40 | n = 300 |",
-		"| any cause | 1.000 (0.000) | 0.000 (0.000) |",
+		"| any cause | 1.000 (4 of 4; above 0.473 with 95% confidence) | 0.000 (0 of 4; below 0.527 with 95% confidence) |",
 		"| reject_if_sparse (rule 3, line 52) rejected the last candidates | 0.750 (0.000) | 0 |",
 	} {
 		if !strings.Contains(md, w) {
@@ -146,7 +146,7 @@ func TestPowerReportSaysWhereHypothesesHold(t *testing.T) {
 		t.Fatal(err)
 	}
 	md := string(files["power.md"])
-	for _, w := range []string{holdsAtSentence("dose = 0", "female = 0"), "| Hypothesis (plan line) | Holds at | n = 100 | not testable |", "| `dose = 0` (9) | female = 0 | 0.500 (0.000) | 0 |", "| `dose&female = 0` (10) |  | 0.000 (0.000) | 0 |"} {
+	for _, w := range []string{holdsAtSentence("dose = 0", "female = 0"), "| Hypothesis (plan line) | Holds at | n = 100 | not testable |", "| `dose = 0` (9) | female = 0 | 0.500 (0.000) | 0 |", "| `dose&female = 0` (10) |  | 0.000 (0 of 10; below 0.259 with 95% confidence) | 0 |"} {
 		if !strings.Contains(md, w) {
 			t.Errorf("power.md lacks %q:\n%s", w, md)
 		}

@@ -132,7 +132,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 				if h.HoldsAt != "" {
 					at = " (at " + h.HoldsAt + ")"
 				}
-				parts = append(parts, fmt.Sprintf("%s%s: power %.3f (MC se %.3f)", h.Hypothesis, at, h.Power.Rate, h.Power.SE))
+				parts = append(parts, fmt.Sprintf("%s%s: power %s", h.Hypothesis, at, h.Power.Text("MC se ")))
 			}
 			parts = append(parts, mostOftenChosen(s.Chosen))
 			fmt.Fprintf(stdout, "%s n=%d: %s\n", op.Outcome, s.N, strings.Join(parts, "; "))

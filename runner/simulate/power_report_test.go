@@ -2,6 +2,8 @@ package simulate
 
 import (
 	"bytes"
+	"fmt"
+	"math"
 	"os"
 	"strconv"
 	"strings"
@@ -138,5 +140,38 @@ func TestPowerReplicatePanicIsAFailedRun(t *testing.T) {
 	// The temporary folder Power made (under TMPDIR) is gone.
 	if entries, _ := os.ReadDir(tmp); len(entries) > 0 {
 		t.Errorf("%d entries left in the temporary folder, first %s", len(entries), entries[0].Name())
+	}
+}
+
+// Every rate of a power study is written by Rate.Text: the share with its
+// Monte Carlo standard error, except at 0 or R of R replicates, where the
+// bracket gives the exact one-sided 95% bound: the rate p at which the
+// binomial probability of what was seen, (1-p)^R for none and p^R for
+// all, is 0.05 (Clopper-Pearson; checked here by that identity).
+func TestRateText(t *testing.T) {
+	for _, c := range []struct {
+		r       Rate
+		se, out string
+	}{
+		{rate(27, 100), "", "0.270 (0.044)"},
+		{rate(27, 100), "MC se ", "0.270 (MC se 0.044)"},
+		{rate(0, 100), "MC se ", "0.000 (0 of 100; below 0.030 with 95% confidence)"},
+		{rate(100, 100), "", "1.000 (100 of 100; above 0.970 with 95% confidence)"},
+		{rate(0, 20), "", "0.000 (0 of 20; below 0.139 with 95% confidence)"},
+		{rate(0, 0), "", "0.000 (0.000)"},
+	} {
+		if got := c.r.Text(c.se); got != c.out {
+			t.Errorf("%+v: %q, want %q", c.r, got, c.out)
+		}
+	}
+	for _, R := range []int{1, 20, 100, 500} {
+		up := 1 - math.Pow(0.05, 1/float64(R))
+		if p := math.Pow(1-up, float64(R)); math.Abs(p-0.05) > 1e-12 {
+			t.Errorf("R = %d: P(0 of R | p = %g) = %g, want 0.05", R, up, p)
+		}
+		text := rate(0, R).Text("")
+		if want := fmt.Sprintf("below %.3f with", up); !strings.Contains(text, want) {
+			t.Errorf("R = %d: %q lacks %q", R, text, want)
+		}
 	}
 }
