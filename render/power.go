@@ -134,10 +134,16 @@ func writePowerHypotheses(d *doc, op simulate.OutcomePower) {
 	for _, h := range op.Sizes[0].Hypotheses {
 		legend = append(legend, h.Hypothesis)
 	}
+	// The axis spans the sizes; a single size is put in the middle of an
+	// axis from half of it to one and a half times it, not at its edge.
+	lo, hi := xs[0], xs[len(xs)-1]
+	if lo == hi {
+		lo, hi = lo/2, lo*3/2
+	}
 	fr := &chartFrame{id: d.chartID(), title: "Power against sample size", subtitle: op.Outcome + ", simulated", height: 380,
 		grid: opts.Grid{Left: "8%", Right: "6%", Bottom: "68"}, legend: legend}
 	l.SetGlobalOptions(append(fr.opts(),
-		charts.WithXAxisOpts(opts.XAxis{Name: "n", Type: "value", Min: val(xs[0]), Max: val(xs[len(xs)-1])}),
+		charts.WithXAxisOpts(opts.XAxis{Name: "n", Type: "value", Min: val(lo), Max: val(hi)}),
 		charts.WithYAxisOpts(opts.YAxis{Name: "power", Type: "value", Min: 0, Max: 1}))...)
 	for hi, h := range op.Sizes[0].Hypotheses {
 		ys := make([]float64, len(op.Sizes))

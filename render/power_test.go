@@ -152,3 +152,31 @@ func TestPowerReportSaysWhereHypothesesHold(t *testing.T) {
 		}
 	}
 }
+
+// The power chart's n axis spans the sizes; a single size sits in the
+// middle of an axis from half of it to one and a half times it, not at an
+// edge.
+func TestPowerChartAxisAroundOneSize(t *testing.T) {
+	for _, c := range []struct {
+		sizes []int
+		axis  string
+	}{
+		{[]int{150}, `"xAxis":[{"type":"value","name":"n","min":75,"max":225}]`},
+		{[]int{100, 400}, `"xAxis":[{"type":"value","name":"n","min":100,"max":400}]`},
+	} {
+		var srs []simulate.SizeResult
+		for _, n := range c.sizes {
+			srs = append(srs, simulate.SizeResult{N: n, Hypotheses: []simulate.HypothesisPower{{Hypothesis: "x = 0", Line: 9, Power: simulate.Rate{Count: 3, Of: 10, Rate: 0.3}}}})
+		}
+		pr := &simulate.PowerResult{Simulated: true, PlanFile: "p.yaml", PlanSHA256: "abc", Seed: 1, Generator: "cumulative logit",
+			Replicates: 10, Alpha: 0.05, Sizes: c.sizes, Version: "0.1.0",
+			Outcomes: []simulate.OutcomePower{{Outcome: "y", Sizes: srs}}}
+		files, err := PowerOutputs(pr, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if html := string(files["power.html"]); !strings.Contains(html, c.axis) {
+			t.Errorf("sizes %v: power.html lacks %s", c.sizes, c.axis)
+		}
+	}
+}
