@@ -78,7 +78,7 @@ func (d *decoder) decodeRule(n *yaml.Node, path string) Rule {
 			return r
 		}
 		m.word("by", "criterion", criterionWords, &r.By)
-		if f, ok := m.atLeast("margin", 0, false); ok {
+		if f, ok := m.bounded(ruleKey(kind, "margin")); ok {
 			r.Margin = f
 		}
 		m.name("otherwise", &r.Otherwise)
@@ -96,10 +96,10 @@ func (d *decoder) decodeRule(n *yaml.Node, path string) Rule {
 		if !ok {
 			return r
 		}
-		if f, ok := m.atLeast("per_parameter", 0, true); ok {
+		if f, ok := m.bounded(ruleKey(kind, "per_parameter")); ok {
 			r.PerParameter = f
 		}
-		if f, ok := m.atLeast("smallest_category", 0, true); ok {
+		if f, ok := m.bounded(ruleKey(kind, "smallest_category")); ok {
 			r.SmallestCategory = f
 		}
 		m.name("within", &r.Within)
@@ -114,7 +114,7 @@ func (d *decoder) decodeRule(n *yaml.Node, path string) Rule {
 		if !ok {
 			return r
 		}
-		if f, ok := m.atLeast("max_condition", 1, true); ok {
+		if f, ok := m.bounded(ruleKey(kind, "max_condition")); ok {
 			r.MaxCondition = f
 		}
 		if mv := m.get("min_starts_agreeing"); mv != nil {
@@ -173,23 +173,28 @@ func (d *decoder) ruleOptions(v *yaml.Node, path string, keys []string) (*mappin
 	return m, m != nil
 }
 
-// atLeast reads a number that must be >= lo (> lo when strict).
-func (m *mapping) atLeast(key string, lo float64, strict bool) (float64, bool) {
-	mv := m.get(key)
+// ruleKey is the description in Spec of option name of rule kind.
+func ruleKey(kind, name string) *Key { return Spec.find("rules." + kind + "." + name) }
+
+// bounded reads the number of key x (a KindNumber with Min) within the
+// bound its description gives: >= Min, or > Min when MinOpen, so that the
+// help, the schema and the decoder hold one bound.
+func (m *mapping) bounded(x *Key) (float64, bool) {
+	mv := m.get(x.Name)
 	if mv == nil {
 		return 0, false
 	}
 	op := ">="
-	if strict {
+	if x.MinOpen {
 		op = ">"
 	}
-	want := fmt.Sprintf("a number %s %v", op, lo)
-	f, ok := m.d.numberWant(mv, m.at(key), want)
+	want := fmt.Sprintf("a number %s %v", op, *x.Min)
+	f, ok := m.d.numberWant(mv, m.at(x.Name), want)
 	if !ok {
 		return 0, false
 	}
-	if f < lo || strict && f == lo {
-		m.d.errorf(deref(mv), m.at(key), "%v is out of range (want %s)", f, want)
+	if f < *x.Min || x.MinOpen && f == *x.Min {
+		m.d.errorf(deref(mv), m.at(x.Name), "%v is out of range (want %s)", f, want)
 		return 0, false
 	}
 	return f, true

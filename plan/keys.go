@@ -29,6 +29,8 @@ type Key struct {
 	// or a mapping of its options (Keys).
 	Variants []*Key
 	Min, Max *float64 // numbers: bounds (exclusive for KindProbability)
+	// MinOpen: Min itself is refused (a number above Min; above).
+	MinOpen bool
 }
 
 // Kind is what a key holds.
@@ -69,6 +71,7 @@ func (x *Key) keys(ks ...*Key) *Key       { x.Keys = ks; return x }
 func (x *Key) item(it *Key) *Key          { x.Item = it; return x }
 func (x *Key) variants(v ...*Key) *Key    { x.Variants = v; return x }
 func (x *Key) atLeast(v float64) *Key     { x.Min = &v; return x }
+func (x *Key) above(v float64) *Key       { x.Min, x.MinOpen = &v, true; return x }
 func (x *Key) range_(lo, hi float64) *Key { x.Min, x.Max = &lo, &hi; return x }
 
 func mkey(name, doc string, ks ...*Key) *Key { return k(name, KindMapping, doc).keys(ks...) }
@@ -169,12 +172,12 @@ var Spec = mkey("", "An analysis plan.",
 			k("grid", KindMap, "Where predictions are compared: every combination of numeric column: [values] and categorical column: all, a level or [levels], the other columns at their means or reference levels (default: the rows used).").keys(k("", KindAny, "Values of a numeric predictor; all, a level or a list of levels of a categorical one.")),
 		),
 		mkey(RuleRejectIfSparse, "Reject a model with too few observations per parameter or too small categories.",
-			k("per_parameter", KindNumber, "Observations per parameter at least this (more than 0; rows with sampling weights).").atLeast(0),
-			k("smallest_category", KindNumber, "Every outcome category count at least this (more than 0).").atLeast(0),
+			k("per_parameter", KindNumber, "Observations per parameter at least this (rows with sampling weights).").above(0),
+			k("smallest_category", KindNumber, "Every outcome category count at least this.").above(0),
 			k("within", KindName, "Count the categories within each value of this column (for a predictor: in models where its effect varies across equations)."),
 		),
 		mkey(RuleRejectIfUnstable, "Reject a model whose information is ill-conditioned or whose constrained search is unstable.",
-			k("max_condition", KindNumber, "Largest condition number of the information scaled to unit diagonal (more than 1).").atLeast(1),
+			k("max_condition", KindNumber, "Largest condition number of the information scaled to unit diagonal.").above(1),
 			k("min_starts_agreeing", KindInteger, "Starts of a constrained search reaching the best value.").range_(1, 1000),
 		),
 		chooseRule(RuleChoose, "Choose the model with the smallest criterion.", "0"),
@@ -317,6 +320,8 @@ func KeyHelp() string {
 		}
 		if x.Min != nil && x.Max != nil {
 			t += fmt.Sprintf(", %g to %g", *x.Min, *x.Max)
+		} else if x.Min != nil && x.MinOpen {
+			t += fmt.Sprintf(", more than %g", *x.Min)
 		} else if x.Min != nil {
 			t += fmt.Sprintf(", at least %g", *x.Min)
 		}
@@ -394,7 +399,9 @@ func schemaOf(x *Key) map[string]any {
 		if x.Kind == KindProbability {
 			s["exclusiveMinimum"], s["exclusiveMaximum"] = 0, 1
 		}
-		if x.Min != nil {
+		if x.Min != nil && x.MinOpen {
+			s["exclusiveMinimum"] = *x.Min
+		} else if x.Min != nil {
 			s["minimum"] = *x.Min
 		}
 		if x.Max != nil {

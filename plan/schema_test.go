@@ -3,6 +3,7 @@ package plan
 import (
 	"bytes"
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -99,5 +100,55 @@ func TestKeyHelpListsEveryKey(t *testing.T) {
 	}
 	if got := strings.Join(keysAt("models"), ","); got != "approaches,direction,effects,links,partial,run_every_start" {
 		t.Errorf("models keys %s", got)
+	}
+}
+
+// Every number option of a rule with a lower bound is refused at the
+// bound by the decoder exactly when the schema refuses it (exclusiveMinimum
+// for a bound the value must exceed, minimum otherwise) and when `ordplan
+// help plan` says "more than", and both take a value above the bound: the
+// bound is written once, in Spec (Key.Min, Key.MinOpen).
+func TestRuleBoundsAsTheSchema(t *testing.T) {
+	s := compiledSchema(t)
+	src, err := os.ReadFile(filepath.Join("..", "plans", "example.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	const line = "  - reject_if_sparse: {per_parameter: 10, smallest_category: 5, within: pilot}"
+	if !strings.Contains(string(src), line) {
+		t.Fatalf("%q is not in the example plan", line)
+	}
+	help := KeyHelp()
+	tried := 0
+	for _, rule := range Spec.find("rules").Variants {
+		for _, x := range rule.Keys {
+			if x.Kind != KindNumber || x.Min == nil {
+				continue
+			}
+			tried++
+			path := "rules[2]." + rule.Name + "." + x.Name + ":"
+			where := "/rules/2/" + rule.Name + "/" + x.Name
+			for _, v := range []float64{*x.Min, *x.Min + 1} {
+				bad := strings.Replace(string(src), line, fmt.Sprintf("  - %s: {%s: %v}", rule.Name, x.Name, v), 1)
+				_, perr := Parse([]byte(bad), "bounds.yaml")
+				decRefused := perr != nil && strings.Contains(perr.Error(), path)
+				serr := s.Validate(asJSON(t, []byte(bad)))
+				schemaRefused := serr != nil && strings.Contains(serr.Error(), where)
+				want := v == *x.Min && x.MinOpen
+				if decRefused != want || schemaRefused != want {
+					t.Errorf("%s = %v: refused by the decoder %v (%v), by the schema %v (%v); want %v", where, v, decRefused, perr, schemaRefused, serr, want)
+				}
+			}
+			word := "at least"
+			if x.MinOpen {
+				word = "more than"
+			}
+			if !strings.Contains(help, fmt.Sprintf("number, %s %g", word, *x.Min)) {
+				t.Errorf("%s: the help does not say %q %g", where, word, *x.Min)
+			}
+		}
+	}
+	if tried < 4 { // margin (choose, prefer_simpler), per_parameter, smallest_category, max_condition
+		t.Fatalf("only %d bounded rule options", tried)
 	}
 }
