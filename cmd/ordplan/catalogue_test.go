@@ -1457,6 +1457,9 @@ func catalogue(dir string) (items []badInput) {
 				if !strings.Contains(out, "y: no model chosen") {
 					t.Errorf("stdout: %s", out)
 				}
+				if rep, _ := os.ReadFile(filepath.Join(dir, "P28-out", "report.md")); !strings.Contains(string(rep), "**Result: no model chosen:** every candidate was rejected, and the plan says to stop (otherwise: stop).") {
+					t.Errorf("the report's decision log does not end as the catalogue says:\n%s", rep)
+				}
 				// With a fallback, that model is reported and marked.
 				p := filepath.Join(dir, "P28b.yaml")
 				os.WriteFile(p, []byte(edit("reject_unconverged: true", "reject_if_sparse: {per_parameter: 1000}", "{by: aic}", "{by: aic, otherwise: stage/parallel/logit}")), 0o644)
