@@ -106,7 +106,7 @@ func imputedSets(a *Analysis, r Reading) (*ImputedRun, []*data.Dataset, *design.
 		}
 	} else {
 		run.Source, run.Files, run.Column = "stacked", []string{im.File}, im.Column
-		m, err := imputationNumbers(src, im, dopt.Dialect)
+		m, err := imputationNumbers(src, r.Outcome, im, dopt.Dialect)
 		if err != nil {
 			return nil, nil, nil, err
 		}
@@ -184,8 +184,11 @@ func designSets(spec design.Spec, sets []*data.Dataset) (*design.Design, []*fit.
 // imputationNumbers reads the imputation-number column of a stacked file
 // and returns the number of imputed sets: the numbers must be whole, 0
 // (the original data, not analysed) or 1..m without gaps, m >= 2, and
-// every set must have as many rows as set 1.
-func imputationNumbers(src string, im *plan.Imputed, dl data.Dialect) (int, error) {
+// every set must have as many rows as set 1 (stackedSets). A problem of
+// the numbers is a problem of the data: its message ends, as every data
+// message of a plan's run, with the plan and the outcome read (src, the
+// plan file; outcome).
+func imputationNumbers(src, outcome string, im *plan.Imputed, dl data.Dialect) (int, error) {
 	rows := map[int]int{}
 	err := data.ColumnCells(im.Path, dl, im.Column, func(line int, cell string) error {
 		k, err := strconv.Atoi(cell)
@@ -201,9 +204,21 @@ func imputationNumbers(src string, im *plan.Imputed, dl data.Dialect) (int, erro
 		return 0, fmt.Errorf("%s: data.imputed.column: column %q is not in %s", src, im.Column, im.File)
 	case errors.As(err, &de):
 		return 0, fmt.Errorf("%s: data.imputed.file: %v", src, err)
-	case err != nil:
-		return 0, err
 	}
+	m := 0
+	if err == nil {
+		m, err = stackedSets(im, rows)
+	}
+	if err != nil {
+		return 0, fmt.Errorf("%s (plan %s, outcome %q, plan key data.imputed.column)", err, src, outcome)
+	}
+	return m, nil
+}
+
+// stackedSets is the number of imputed sets of a stacked file from the
+// count of rows of each imputation number (rows), or why the numbers are
+// wrong.
+func stackedSets(im *plan.Imputed, rows map[int]int) (int, error) {
 	var nums []int
 	for k := range rows {
 		if k > 0 {

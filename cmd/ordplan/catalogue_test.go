@@ -967,16 +967,16 @@ func catalogue(dir string) (items []badInput) {
 		// Multiply imputed data.
 		{id: "I1", name: "imputation numbers with a gap", args: []string{"run"}, setup: imputedFiles,
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp-gap.csv, column: imp}\n"), code: 1,
-			want: []string{`imp-gap.csv: column imp: imputation numbers must run 1, 2, ..., m without gaps; 2 has no rows but 3 has`}},
+			want: []string{`imp-gap.csv: column imp: imputation numbers must run 1, 2, ..., m without gaps; 2 has no rows but 3 has (plan I1.yaml, outcome "y", plan key data.imputed.column)`}},
 		{id: "I2", name: "one imputed set only", args: []string{"run"}, setup: imputedFiles,
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp-one.csv, column: imp}\n"), code: 1,
-			want: []string{`imp-one.csv: column imp holds one imputed set only (imputation number 1); pooling needs at least two imputed sets`}},
+			want: []string{`imp-one.csv: column imp holds one imputed set only (imputation number 1); pooling needs at least two imputed sets (plan I2.yaml, outcome "y", plan key data.imputed.column)`}},
 		{id: "I3", name: "one imputed file only", args: []string{"check"},
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {files: [d.csv]}\n"), code: 1,
 			want: []string{`data.imputed.files: lists 1 file; pooling over imputed data needs at least two imputed sets`}},
 		{id: "I4", name: "imputed sets with different rows", args: []string{"run"}, setup: imputedFiles,
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp-rows.csv, column: imp}\n"), code: 1,
-			want: []string{`imp-rows.csv: column imp: imputed set 2 has 119 rows but set 1 has 120; imputed sets must hold the same rows`}},
+			want: []string{`imp-rows.csv: column imp: imputed set 2 has 119 rows but set 1 has 120; imputed sets must hold the same rows (plan I4.yaml, outcome "y", plan key data.imputed.column)`}},
 		{id: "I5", name: "imputed files with different columns", args: []string{"run"}, setup: imputedFiles,
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {files: [d.csv, imp-cols.csv]}\n"), code: 1,
 			want: []string{`data.imputed.files: imp-cols.csv has the columns y, a, b, extra but d.csv has y, a, b, c, d, big, tiny; imputed sets must have the same columns`}},
@@ -998,7 +998,7 @@ func catalogue(dir string) (items []badInput) {
 			want:  []string{`data.imputed: imputed set 1, imp-clu-both.csv (imp = 1), line 2: the cluster column "three" (data.cluster) is "z" where the data file clu.csv, line 2, has "k"; cluster ids are not imputed`, `: an imputed set must keep every observed value of the data file: make the imputed sets again from clu.csv, or point data.file at the data they were made from`}},
 		{id: "I7", name: "imputation number that is not a whole number", args: []string{"run"}, setup: imputedFiles,
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp-frac.csv, column: imp}\n"), code: 1,
-			want: []string{`imp-frac.csv:2: column imp: imputation number "1.5" is not a whole number 0 or more (0 marks the original data)`}},
+			want: []string{`imp-frac.csv:2: column imp: imputation number "1.5" is not a whole number 0 or more (0 marks the original data) (plan I7.yaml, outcome "y", plan key data.imputed.column)`}},
 
 		// Imputation by chained equations (data.missing: impute).
 		{id: "I8", name: "impute with nothing missing", args: []string{"run"},
