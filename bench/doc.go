@@ -6,7 +6,9 @@
 // data files, the chunked parallel CSV reader against the record-at-a-time
 // one. Every ratio is measured within one run; nothing is asserted.
 //
-//	go run ./bench -out bench/README.md       # the full table (about 15 minutes here)
+//	go run ./bench -out /tmp/bench.md         # the full table (about 15 minutes here), to a
+//	                                           # new file (-out refuses one that exists): copy its
+//	                                           # sections into bench/README.md by hand
 //	go run ./bench -smoke                      # a small variant for CI
 //	go run ./bench -only targets               # the fitting engine's speed targets only
 //	go run ./bench -only ingest                # reading data only: CSV (three dialects) and

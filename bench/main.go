@@ -1,9 +1,11 @@
 package main
 
 import (
+	"errors"
 	"flag"
 	"fmt"
 	"io"
+	"io/fs"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -18,7 +20,7 @@ import (
 )
 
 func main() {
-	out := flag.String("out", "", "write the Markdown report here (default: stdout)")
+	out := flag.String("out", "", "write the Markdown report to this new file (default: stdout); an existing file is refused, so that bench/README.md's hand-written history is never overwritten: copy the sections into it by hand")
 	smoke := flag.Bool("smoke", false, "small sizes only (CI smoke test)")
 	only := flag.String("only", "", "run one part only: ingest (reading data files), targets (the fitting engine's speed targets, the table of bench/README.md's first section), iteration (the targets' rows of one Newton iteration against one X'WX plus one kernel pass) or grid (the targets' grid row with every model's time and passes over the data, at -targets-grid-rows)")
 	ingestRows := flag.Int("ingest-rows", 1_000_000, "rows of the files the ingest part reads")
@@ -59,7 +61,13 @@ func main() {
 	}
 	w := io.Writer(os.Stdout)
 	if *out != "" {
-		f, err := os.Create(*out)
+		// A new file only: O_EXCL refuses a name that exists, at once,
+		// before anything is measured.
+		f, err := os.OpenFile(*out, os.O_WRONLY|os.O_CREATE|os.O_EXCL, 0o644)
+		if errors.Is(err, fs.ErrExist) {
+			fmt.Fprintf(os.Stderr, "bench: -out %s: the file exists; -out writes a new file only (bench/README.md holds the measurements of earlier sessions): give a new name, then copy the sections into bench/README.md by hand\n", *out)
+			os.Exit(1)
+		}
 		if err != nil {
 			fmt.Fprintln(os.Stderr, "bench:", err)
 			os.Exit(1)
@@ -299,8 +307,9 @@ func slope(x, y []float64) float64 {
 	return sxy / sxx
 }
 
-// grid times the twelve-model grid: every fit one after another (one
-// worker each), then all of them at once on every core.
+// grid times the twelve-model grid (cells: the targets' 13-model grid,
+// gridCells, without adjacent/stereotype): every fit one after another
+// (one worker each), then all of them at once on every core.
 func grid(w io.Writer, n, K, J int) {
 	d := generate(n, K, J, 7)
 	all := cells(K)
@@ -310,7 +319,7 @@ func grid(w io.Writer, n, K, J int) {
 		serial += s
 	}
 	par := fitAtOnce(d, all)
-	fmt.Fprintf(w, "\n## The twelve-model grid\n\nn = %d: one after another %.2f s; on %d cores %.2f s; speed-up %.2f.\n", n, serial, runtime.GOMAXPROCS(0), par, serial/par)
+	fmt.Fprintf(w, "\n## The twelve-model grid (the 13-model grid without adjacent/stereotype)\n\nn = %d: one after another %.2f s; on %d cores %.2f s; speed-up %.2f.\n", n, serial, runtime.GOMAXPROCS(0), par, serial/par)
 }
 
 // wide fits the parallel and nonparallel cumulative models with 100
