@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -21,26 +22,50 @@ import (
 // MaxPlanBytes is the largest plan file Load reads.
 const MaxPlanBytes = 4 << 20
 
-// Load reads the plan file at path, checks it and applies defaults. Unlike
-// Parse it also opens the data file and checks that every column the plan
-// names is in its header, so that a misspelt column is reported at its
-// line in the plan.
+// Load reads the plan file at path (ReadFile), checks it and applies
+// defaults. Unlike Parse it also opens the data file and checks that every
+// column the plan names is in its header, so that a misspelt column is
+// reported at its line in the plan.
 func Load(path string) (*Plan, error) {
-	// A plan is a short text file: a named pipe, a device or a huge file
-	// is refused before it is read.
-	if fi, err := os.Stat(path); err == nil {
-		switch {
-		case !fi.Mode().IsRegular():
-			return nil, Errors{{File: path, Msg: "is not a regular file (a named pipe, a device or a folder): give the plan as a file"}}
-		case fi.Size() > MaxPlanBytes:
-			return nil, Errors{{File: path, Msg: fmt.Sprintf("has %d bytes; a plan is a short text file of at most %d bytes", fi.Size(), MaxPlanBytes)}}
-		}
+	src, err := ReadFile(path)
+	if err != nil {
+		return nil, err
+	}
+	return parse(src, path, true, nil)
+}
+
+// ReadFile reads the plan file at path, for every command that takes one.
+// A plan is a short text file: a named pipe, a device, a folder or a huge
+// file is refused before it is read. A problem is one of the plan (Errors,
+// "PLAN: message"): a file that does not exist says so, one that cannot
+// be read gives the reason.
+func ReadFile(path string) ([]byte, error) {
+	fi, err := os.Stat(path)
+	switch {
+	case errors.Is(err, fs.ErrNotExist):
+		return nil, Errors{{File: path, Msg: "the plan file does not exist: check its name and folder"}}
+	case err != nil:
+		return nil, Errors{{File: path, Msg: "cannot read the plan file: " + pathReason(err)}}
+	case !fi.Mode().IsRegular():
+		return nil, Errors{{File: path, Msg: "is not a regular file (a named pipe, a device or a folder): give the plan as a file"}}
+	case fi.Size() > MaxPlanBytes:
+		return nil, Errors{{File: path, Msg: fmt.Sprintf("has %d bytes; a plan is a short text file of at most %d bytes", fi.Size(), MaxPlanBytes)}}
 	}
 	src, err := os.ReadFile(path)
 	if err != nil {
-		return nil, fmt.Errorf("cannot read plan: %w", err)
+		return nil, Errors{{File: path, Msg: "cannot read the plan file: " + pathReason(err)}}
 	}
-	return parse(src, path, true, nil)
+	return src, nil
+}
+
+// pathReason is the reason of a file-system error without the operation
+// and the path the message already names ("permission denied").
+func pathReason(err error) string {
+	var pe *fs.PathError
+	if errors.As(err, &pe) {
+		return pe.Err.Error()
+	}
+	return err.Error()
 }
 
 // Parse checks the plan in src, read from path, and applies defaults. On

@@ -906,7 +906,31 @@ func catalogue(dir string) (items []badInput) {
 				}
 			}},
 		{id: "P31", name: "plan that is not a regular file", args: []string{"check", "/dev/zero"}, code: 1,
-			want: []string{"/dev/zero: is not a regular file (a named pipe, a device or a folder): give the plan as a file"}},
+			want: []string{"/dev/zero: is not a regular file (a named pipe, a device or a folder): give the plan as a file"},
+			check: func(t *testing.T, dir, out, errs string) {
+				// Every command that reads a plan refuses it before reading
+				// (plan.ReadFile): read, /dev/zero would never end.
+				for _, args := range planCommands(dir) {
+					if _, e, code := runCLI(append(args, "/dev/zero")...); code != 1 || strings.TrimSpace(e) != strings.TrimSpace(errs) {
+						t.Errorf("%v: exit %d: %s", args, code, e)
+					}
+				}
+			}},
+		{id: "P53", name: "plan file that does not exist", args: []string{"check", filepath.Join(dir, "no-such-plan.yaml")}, code: 1,
+			want: []string{"no-such-plan.yaml: the plan file does not exist: check its name and folder"},
+			check: func(t *testing.T, dir, out, errs string) {
+				// The same line from every command that reads a plan, and
+				// a path that cannot be read gives the reason.
+				for _, args := range planCommands(dir) {
+					if _, e, code := runCLI(append(args, filepath.Join(dir, "no-such-plan.yaml"))...); code != 1 || e != errs {
+						t.Errorf("%v: exit %d: %s, want %s", args, code, e, errs)
+					}
+				}
+				p := filepath.Join(dir, "d.csv", "plan.yaml")
+				if _, e, code := runCLI("check", p); code != 1 || e != p+": cannot read the plan file: not a directory\n" {
+					t.Errorf("a plan under a file: exit %d: %s", code, e)
+				}
+			}},
 		{id: "P32", name: "plan file over 4 MB", args: []string{"check", d("huge.yaml")}, code: 1,
 			want: []string{"huge.yaml: has 4194305 bytes; a plan is a short text file of at most 4194304 bytes"}},
 		{id: "P40", name: "a YAML date where a number is needed", args: []string{"check"}, plan: edit("{by: aic}", "{by: aic, margin: 2024-01-01}"), code: 1,
@@ -2030,6 +2054,14 @@ func imputedCopy(t *testing.T, dir string) []byte {
 		t.Fatal(err)
 	}
 	return b
+}
+
+// planCommands are the commands that read a plan, with the flags each
+// needs but the plan (which comes last).
+func planCommands(dir string) [][]string {
+	return [][]string{{"check"}, {"check", "--no-data"}, {"run", "--out", filepath.Join(dir, "plancmd-out"), "--quiet"},
+		{"rehearse", "--out", filepath.Join(dir, "plancmd-rehearsal"), "--quiet"}, {"power", "--n", "100", "--replicates", "2", "--out", filepath.Join(dir, "plancmd-power"), "--quiet"},
+		{"freeze"}}
 }
 
 // reversed is a copy of s in reverse order.

@@ -5,7 +5,6 @@ import (
 	"flag"
 	"fmt"
 	"io"
-	"os"
 	"strings"
 	"time"
 
@@ -29,9 +28,10 @@ func cmdFreeze(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, "ordplan freeze: --registration must be one line of text")
 		return exitUsage
 	}
-	src, err := os.ReadFile(planPath)
+	src, err := plan.ReadFile(planPath)
 	if err != nil {
-		return fail(stderr, fmt.Errorf("cannot read plan: %w", err))
+		fmt.Fprintln(stderr, err)
+		return exitFail
 	}
 	// The data usually do not exist yet: the plan is checked on its own.
 	p, err := plan.Parse(src, planPath)

@@ -27,10 +27,9 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 	var err error
 	if *noData {
 		var src []byte
-		if src, err = os.ReadFile(planPath); err != nil {
-			return fail(stderr, fmt.Errorf("cannot read plan: %w", err))
+		if src, err = plan.ReadFile(planPath); err == nil {
+			p, err = plan.Parse(src, planPath)
 		}
-		p, err = plan.Parse(src, planPath)
 	} else {
 		p, err = plan.Load(planPath)
 	}

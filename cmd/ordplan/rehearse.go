@@ -22,9 +22,9 @@ const simulatedFile = "simulated-data.csv"
 // loadForSimulation reads a plan whose data need not exist yet, to
 // simulate the rows given (assumptions.n when rows has no sizes).
 func loadForSimulation(path string, rows plan.Rows) (*plan.Plan, error) {
-	src, err := os.ReadFile(path)
+	src, err := plan.ReadFile(path)
 	if err != nil {
-		return nil, fmt.Errorf("cannot read plan: %w", err)
+		return nil, err
 	}
 	return plan.ParseSimulation(src, path, rows)
 }
