@@ -506,8 +506,9 @@ func TestEmptyAndMissingFiles(t *testing.T) {
 			t.Errorf("Parse(%q) error = %v", src, err)
 		}
 	}
-	_, err := Load(filepath.Join(t.TempDir(), "absent.yaml"))
-	if !errors.Is(err, os.ErrNotExist) {
+	absent := filepath.Join(t.TempDir(), "absent.yaml")
+	_, err := Load(absent)
+	if err == nil || err.Error() != absent+": the plan file does not exist: check its name and folder" {
 		t.Errorf("Load of a missing file: %v", err)
 	}
 }
