@@ -71,7 +71,7 @@ func KindOf(p data.Profile, haveData bool) Kind {
 			what = "numeric, whole numbers"
 		}
 		if p.ThousandsPoint != "" {
-			miss += fmt.Sprintf("; its points look like thousands separators (%s beside %s): see data.decimal", p.ThousandsPoint, p.ThousandsBeside)
+			miss += "; its points " + thousandsLike(p) + ": see data.decimal"
 		}
 		return Kind{Word: "numeric", Describe: fmt.Sprintf("%s from %s to %s%s", what, num(p.Min), num(p.Max), miss)}
 	case !p.Many && p.Distinct <= 12 && p.Distinct >= 3 && scaleLike(p.Values):
@@ -330,6 +330,15 @@ func Write(in Input) ([]byte, error) {
 	return []byte(b.String()), nil
 }
 
+// thousandsLike says how a column's points look like thousands
+// separators (data.Profile.ThousandsPoint).
+func thousandsLike(c data.Profile) string {
+	if c.ThousandsBeside == "" {
+		return fmt.Sprintf("may separate thousands (every value has one and three digits after it, such as %s)", c.ThousandsPoint)
+	}
+	return fmt.Sprintf("look like thousands separators (%s beside %s)", c.ThousandsPoint, c.ThousandsBeside)
+}
+
 // lowCodes reports whether a numeric column holds conventional
 // missing-value codes (-9, -99, ...) below values that are all 0 or more.
 func lowCodes(c data.Profile) bool {
@@ -419,8 +428,11 @@ func writeDialect(w func(string, ...any), in Input) {
 		w("  delimiter: %-12s # %s%s", d.DelimiterWord(), strings.Join(data.DelimiterWords, " | "), how)
 		w("  decimal: %-14s # %s: 1.5 or 1,5", d.DecimalWord(), strings.Join(data.DecimalWords, " | "))
 		for _, c := range in.Columns {
-			if c.ThousandsPoint != "" {
-				w("  # EDIT: the points of column %s look like thousands separators (%s beside %s), which check and run refuse: write the file's numbers without them", c.Name, c.ThousandsPoint, c.ThousandsBeside)
+			switch {
+			case c.ThousandsPoint != "" && c.ThousandsBeside != "":
+				w("  # EDIT: the points of column %s %s, which check and run refuse: write the file's numbers without them", c.Name, thousandsLike(c))
+			case c.ThousandsPoint != "":
+				w("  # EDIT: the points of column %s %s: if they do, write the file's numbers without them", c.Name, thousandsLike(c))
 			}
 		}
 	}

@@ -183,6 +183,11 @@ func (e *pointEvidence) add(cell string, line int) {
 	e.points++
 }
 
+// suspect reports whether the cells added are written as thousands
+// separated with a point would be, so far: some with a point, and none
+// against.
+func (e *pointEvidence) suspect() bool { return !e.against && e.points > 0 }
+
 // conclusive reports whether the cells added show thousands separators.
 func (e *pointEvidence) conclusive() bool { return !e.against && e.points > 0 && e.small > 0 }
 
@@ -197,7 +202,9 @@ const pointSample = 1000
 // no error. It reads the first pointSample rows of the text apart from
 // the rows' path, and the rest only when a column shows the sign there,
 // so that a file without it costs no more than those rows (nothing at
-// all with a comma or a decimal comma).
+// all with a comma or a decimal comma). A column whose every value has a
+// point and three digits after it, and no integer beside, may be either:
+// it gets a note (reader.pointNotes), not a refusal.
 func (r *reader) thousandsPoints() error {
 	d := r.opt.Dialect
 	if r.raw == nil || r.head == nil || d.DecimalComma || d.delim() == ',' {
@@ -238,11 +245,18 @@ func (r *reader) thousandsPoints() error {
 				ev[k].add(cell, line)
 			}
 		}
-		if row == pointSample && !slices.ContainsFunc(ev, func(e pointEvidence) bool { return e.conclusive() }) {
+		if row == pointSample && !slices.ContainsFunc(ev, func(e pointEvidence) bool { return e.suspect() }) {
 			return nil
 		}
 	}
 	for k, e := range ev {
+		if e.suspect() && e.small == 0 {
+			// Every value has a point and three digits after it: decimals
+			// written with three places, or thousands separated; said, not
+			// refused.
+			r.pointNotes = append(r.pointNotes, fmt.Sprintf("Every value of column %s is written with a point and three digits after it (%d values, such as %s), none otherwise: in a %s-separated file read with a decimal point (data.decimal: point) they are decimals, %s; if the points separate thousands (%s), the values were read a thousand times too small: write the numbers without separators",
+				cols[k].name, e.points, e.example, d.DelimiterWord(), e.example, strings.Replace(e.example, ".", "", 1)))
+		}
 		if e.conclusive() {
 			whole := strings.Replace(e.example, ".", "", 1)
 			return r.fail(e.line, cols[k].name, "value %s looks like %s written with a thousands separator: every value of the column with a point has three digits after it and would be 1000 or more without it (%d values), and the others are integers below 1000 written without a point (%d, such as %s); a decimal point reads it as %s. Write the numbers without thousands separators (%s); or, if the points are decimal points, write the whole numbers with three decimals too (%s)",

@@ -41,8 +41,9 @@ type Profile struct {
 	// ThousandsPoint, of a column read as numbers with a decimal point in
 	// a file whose delimiter is a semicolon or a tab, is a cell whose
 	// point looks like a thousands separator (pointEvidence: 3.473 beside
-	// 313), and ThousandsBeside an integer written without one; "" when
-	// the column shows no such sign.
+	// 313), and ThousandsBeside an integer written without one ("" when
+	// every value has such a point, which three decimals could be too);
+	// "" when the column shows no such sign.
 	ThousandsPoint, ThousandsBeside string
 }
 
@@ -215,7 +216,7 @@ func (r *reader) profile() ([]Profile, error) {
 			slices.Sort(p.Codes)
 			slices.Sort(p.TopCodes)
 			p.TopCodes, p.MaxOther = topCodes(p.TopCodes, p.MaxOther)
-			if pe := points[i]; pe.conclusive() && !d.DecimalComma && d.delim() != ',' && r.head != nil {
+			if pe := points[i]; pe.suspect() && !d.DecimalComma && d.delim() != ',' && r.head != nil {
 				p.ThousandsPoint, p.ThousandsBeside = pe.example, pe.integer
 			}
 		} else {

@@ -117,6 +117,9 @@ type reader struct {
 	// are numbers (readNumbers; read only once the rows are read)
 	numCodes map[string][]float64
 	head     []byte // the first bytes of CSV text, for SuggestDialect
+	// pointNotes: the columns whose points may separate thousands
+	// (thousandsPoints), for Dataset.Notes
+	pointNotes []string
 }
 
 func (r *reader) fail(line int, column, format string, args ...any) *Error {

@@ -106,6 +106,9 @@ func (r *reader) finish(t *rowTally, d *Dataset) (*Dataset, error) {
 	if err := r.wholeCounts(d); err != nil {
 		return nil, err
 	}
+	if !opt.Part {
+		d.Notes = append(d.Notes, r.pointNotes...)
+	}
 	if opt.Sampling && !opt.Unscaled {
 		total := weightTotal(d.Weights)
 		if opt.Part {

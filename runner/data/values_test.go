@@ -50,6 +50,15 @@ func TestThousandsPointsRefused(t *testing.T) {
 			t.Errorf("%s: got %v, want %q", c.name, err, c.want)
 		}
 	}
+	// Every value with a point and three digits, no integer: three
+	// decimals, or thousands; read, with a note.
+	d, err := Read(strings.NewReader(rows(";", "1.250", "2.375", "13.125")), "t.csv", opt(semi))
+	if want := "Every value of column a is written with a point and three digits after it (3 values, such as 1.250), none otherwise: in a semicolon-separated file read with a decimal point (data.decimal: point) they are decimals, 1.250; if the points separate thousands (1250), the values were read a thousand times too small: write the numbers without separators"; err != nil || len(d.Notes) != 1 || d.Notes[0] != want {
+		t.Errorf("three decimals everywhere: %v %q", err, d.Notes)
+	}
+	if d, err := Read(strings.NewReader(rows(";", "1.250", "2.375", "13.125", "0.5")), "t.csv", opt(semi)); err != nil || len(d.Notes) != 0 {
+		t.Errorf("three decimals and a half: %v %q", err, d.Notes)
+	}
 	// The first rows show the sign; a decimal beyond them settles it.
 	cells := make([]string, 0, 1500)
 	for i := range 1500 {
