@@ -13,8 +13,9 @@ import (
 // for which the parallel-lines assumption has nothing to test.
 const oneBoundary = "With two categories there is one boundary, so every predictor has one slope whatever the effect structure: parallel, partial and nonparallel effects give the same model, and the parallel-lines assumption has nothing to test."
 
-// binary reports whether an outcome has two categories.
-func binary(or *runner.OutcomeResult) bool { return or.FitData != nil && or.FitData.J == 2 }
+// binary reports whether an outcome has two categories
+// (runner.OutcomeResult.OneBoundary).
+func binary(or *runner.OutcomeResult) bool { return or.OneBoundary() }
 
 func writeTests(d *doc, or *runner.OutcomeResult) {
 	d.h(3, "Tests of the parallel-lines assumption")

@@ -466,10 +466,15 @@ func meanRows(shape [][]float64, rs []*fit.Result, get func(*fit.Result) [][]flo
 // data set (barredTest).
 func pooledTestBlock(an *Analysis, or *OutcomeResult, perSet [][]*FitEntry, approach fit.Comparison, link fit.Link) *TestBlock {
 	fopt := an.Fit
+	sw := an.Errors.Sampling
+	lr := func(r, f *FitEntry) fit.Test { return pooledLR(or, perSet, r, f) }
+	if tb := oneBoundaryTests(an, or, approach, link); tb != nil {
+		tb.Nested = or.nestedTests(approach, link, nestedLR(sw, lr))
+		return tb
+	}
 	tb := &TestBlock{Approach: approach, Link: link}
 	cell := func(s fit.Structure) *FitEntry { return or.Cell(approach, s, link) }
 	par, np := cell(fit.ParallelEffects), cell(fit.NonparallelEffects)
-	lr := func(r, f *FitEntry) fit.Test { return pooledLR(or, perSet, r, f) }
 	score := func(cols []string) fit.Test {
 		if par == nil {
 			return missingTest(fit.TestScore, "the parallel model was not fitted")
@@ -483,7 +488,6 @@ func pooledTestBlock(an *Analysis, or *OutcomeResult, perSet [][]*FitEntry, appr
 		return pooledScore(or, par, m)
 	}
 	cumLogit := approach == fit.Cumulative && link == fit.Logit
-	sw := an.Errors.Sampling
 	for _, kind := range an.Tests.ParallelLines {
 		if t, barred := barredTest(sw, kind, cumLogit); barred {
 			tb.Global = append(tb.Global, t)

@@ -22,15 +22,47 @@ func missingTest(kind fit.TestKind, reason string) fit.Test {
 // with this reason, rather than left out without a word.
 const cumLogitOnly = "defined for the cumulative logit model only"
 
+// OneBoundary reports whether the outcome has two categories: one
+// boundary, so that every predictor has one slope whatever the effect
+// structure and the parallel-lines assumption has nothing to test. The one
+// decision of both paths (testBlock on one data set, pooledTestBlock on
+// imputed sets: oneBoundaryTests) and of the report, which says so
+// instead of showing the tests; BinaryWarnings says it before the data
+// are read.
+func (or *OutcomeResult) OneBoundary() bool { return or.FitData != nil && or.FitData.J == 2 }
+
+// oneBoundaryReason is why a parallel-lines test of an outcome with two
+// categories is not computed.
+const oneBoundaryReason = "two categories, one boundary: the parallel-lines assumption has nothing to test"
+
+// oneBoundaryTests is the block of parallel-lines tests of an outcome with
+// two categories (OneBoundary): each test the plan asks for, recorded as
+// not computed with oneBoundaryReason, and no test of a single term; nil
+// for any other outcome. The nested tests are the caller's.
+func oneBoundaryTests(an *Analysis, or *OutcomeResult, approach fit.Comparison, link fit.Link) *TestBlock {
+	if !or.OneBoundary() {
+		return nil
+	}
+	tb := &TestBlock{Approach: approach, Link: link}
+	for _, kind := range an.Tests.ParallelLines {
+		tb.Global = append(tb.Global, missingTest(kind, oneBoundaryReason))
+	}
+	return tb
+}
+
 // testBlock runs the parallel-lines tests the plan asks for and the nested
 // likelihood-ratio tests of one approach and link.
 func testBlock(an *Analysis, or *OutcomeResult, approach fit.Comparison, link fit.Link) *TestBlock {
+	sw, fopt := an.Errors.Sampling, an.Fit
+	if tb := oneBoundaryTests(an, or, approach, link); tb != nil {
+		tb.Nested = or.nestedTests(approach, link, nestedLR(sw, lrOf))
+		return tb
+	}
 	tb := &TestBlock{Approach: approach, Link: link}
 	d := or.FitData
 	cell := func(s fit.Structure) *FitEntry { return or.Cell(approach, s, link) }
 	par, np := cell(fit.ParallelEffects), cell(fit.NonparallelEffects)
 	cumLogit := approach == fit.Cumulative && link == fit.Logit
-	sw, fopt := an.Errors.Sampling, an.Fit
 	var brant *fit.BrantResult
 	for _, kind := range an.Tests.ParallelLines {
 		if t, barred := barredTest(sw, kind, cumLogit); barred {
