@@ -187,7 +187,7 @@ func writeMethods(d *doc, r *runner.Result) {
 				s = append(s, fmt.Sprintf("The %s tests of the parallel-lines assumption the plan asks for were not computed: with sampling weights the fits maximize a pseudo-likelihood, which gives them no chi-square reference.", words.AndList(barred)))
 			}
 		}
-		cov := r.Analysis.Errors.Phrase()
+		cov := r.Analysis.Errors.Phrase(mdCode(p.Data.Cluster), runner.ClusterCount(or.Data))
 		switch {
 		case r.Analysis.Errors.Jackknife():
 			cov += " " + c.cite("mnw")

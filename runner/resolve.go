@@ -98,19 +98,28 @@ func (c CovariancePolicy) Jackknife() bool {
 }
 
 // Phrase names the standard errors in running prose (a methods paragraph).
-func (c CovariancePolicy) Phrase() string {
+// Under clustered errors it names their references with the clusters:
+// cluster is the cluster column as the text shows it, g the clusters of
+// the rows used (0: not known, the phrase then says G).
+func (c CovariancePolicy) Phrase(cluster string, g int) string {
 	if c.Jackknife() {
-		return "delete-one-cluster jackknife, " + clusterReferencesPhrase
+		return "delete-one-cluster jackknife, " + clusterReferencesPhrase(cluster, g)
 	}
 	if c.Covariance == fit.Clustered {
-		return c.Covariance.Phrase() + ", " + clusterReferencesPhrase
+		return c.Covariance.Phrase() + ", " + clusterReferencesPhrase(cluster, g)
 	}
 	return c.Covariance.Phrase()
 }
 
 // clusterReferencesPhrase names, in running prose, the references of
-// every cluster-robust covariance (fit.Result.RefDF, waldTest).
-const clusterReferencesPhrase = "its single estimates referred to t on G-1 degrees of freedom and its joint Wald tests of q restrictions as W (G-q)/((G-1) q) to F(q, G-q) (G clusters)"
+// every cluster-robust covariance (fit.Result.RefDF, waldTest), with the
+// cluster column and its number of clusters G (g; 0 when not known).
+func clusterReferencesPhrase(cluster string, g int) string {
+	if g <= 0 {
+		return fmt.Sprintf("its single estimates referred to t on G-1 degrees of freedom and its joint Wald tests of q restrictions as W (G-q)/((G-1) q) to F(q, G-q) (G the clusters of %s)", cluster)
+	}
+	return fmt.Sprintf("its single estimates referred to t on G-1 = %d degrees of freedom and its joint Wald tests of q restrictions as W (G-q)/((G-1) q) to F(q, G-q) (G = %d, the clusters of %s)", g-1, g, cluster)
+}
 
 // Describe says in one sentence how the standard errors are computed, and
 // under clustered errors which references the inference takes.

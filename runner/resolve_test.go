@@ -3,6 +3,7 @@ package runner
 import (
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"ordplan/plan"
@@ -38,5 +39,21 @@ func TestUnobservedCategoryOneWording(t *testing.T) {
 		if c.err == nil || c.err.Error() != c.want {
 			t.Errorf("got %v\nwant %s", c.err, c.want)
 		}
+	}
+}
+
+// The methods' phrase for clustered errors names the cluster column and
+// the clusters G with G-1, on the sandwich and on the jackknife alike.
+func TestClusteredPhraseNamesColumnAndG(t *testing.T) {
+	for _, c := range []CovariancePolicy{{Covariance: fit.Clustered}, {Covariance: fit.Clustered, Correction: fit.Jackknife}} {
+		s := c.Phrase("`g`", 30)
+		for _, want := range []string{"t on G-1 = 29 degrees of freedom", "(G = 30, the clusters of `g`)"} {
+			if !strings.Contains(s, want) {
+				t.Errorf("%q lacks %q", s, want)
+			}
+		}
+	}
+	if s := (CovariancePolicy{Covariance: fit.Sandwich}).Phrase("", 0); strings.Contains(s, "clusters") {
+		t.Errorf("sandwich phrase %q names clusters", s)
 	}
 }
