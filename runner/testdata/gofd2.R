@@ -11,9 +11,9 @@ out <- function(name, v) cat(name, sprintf("%.17g", as.numeric(v)), "\n")
 out("r_version", c(R.version$major, strsplit(R.version$minor, ".", fixed = TRUE)[[1]]))
 out("mitml_version", unlist(packageVersion("mitml")))
 stats <- list(
-  lipsitz = list(d = c(15.171073660307457, 16.75298350527072, 11.363262253182484, 41.820434923839571), k = 9),
-  pearson = list(d = c(10.113889630569918, 8.8798148190469597, 14.679014329630894, 6.1777012494372263), k = 7),
-  deviance = list(d = c(11.181080527027504, 11.606627726395011, 18.730903945855239, 6.1083645811865726), k = 7)
+  lipsitz = list(d = c(19.115063630717714, 19.565837658098019, 18.62031801067269, 22.147239989107334), k = 9),
+  pearson = list(d = c(10.800048651962889, 8.3522630382378189, 7.9772047587605446, 5.3486773042053235), k = 7),
+  deviance = list(d = c(11.387366030423806, 8.7166770946047016, 8.5414598773722847, 5.6391308070965129), k = 7)
 )
 for (name in names(stats)) {
   s <- stats[[name]]

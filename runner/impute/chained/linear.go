@@ -4,6 +4,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"slices"
+	"sort"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -129,10 +130,47 @@ func meanMatching(p *predictors, y []float64, ld linearDraw, k int, rng *rand.Ra
 				hi++
 			}
 		}
-		donor := order[lo+rng.IntN(k)]
-		out[r] = y[p.obs[donor]]
+		out[r] = y[p.obs[order[donorAmongTies(sorted, t, lo, hi, rng)]]]
 	}
 	return out
+}
+
+// donorAmongTies draws the donor's place in sorted (the observed rows'
+// predicted means, ascending) for a missing row of predicted mean t whose
+// k = hi-lo nearest observed rows are the window [lo, hi). The k nearest
+// are not unique when rows outside the window lie exactly as far from t
+// as the window's farthest, which is the rule when the imputation model's
+// predictors are all discrete (every row of a covariate pattern has the
+// same predicted mean): taking the window as found would give every
+// missing row of a pattern the same few donors, the first rows of the
+// tie in the data's order, and bias the imputed values towards them. So
+// the donor is drawn as from a k-set chosen at random among the ties:
+// each of the s rows nearer than the farthest distance d with chance 1/k,
+// otherwise one of all the rows at distance d with equal chances. When no
+// row outside the window ties, this is the window's place lo+u as drawn.
+func donorAmongTies(sorted []float64, t float64, lo, hi int, rng *rand.Rand) int {
+	k := hi - lo
+	u := lo + rng.IntN(k)
+	d := max(t-sorted[lo], sorted[hi-1]-t)
+	// The rows nearer than d are one run [a, b) of sorted, inside the
+	// window; the rows at d are the runs [a1, a) and [b, b1).
+	mid, _ := slices.BinarySearch(sorted, t) // sorted[:mid] < t <= sorted[mid:]
+	a := lo + sort.Search(mid-lo, func(i int) bool { return t-sorted[lo+i] < d })
+	a1 := sort.Search(mid, func(i int) bool { return t-sorted[i] <= d })
+	b := mid + sort.Search(hi-mid, func(i int) bool { return sorted[mid+i]-t >= d })
+	b1 := b + sort.Search(len(sorted)-b, func(i int) bool { return sorted[b+i]-t > d })
+	if u >= a && u < b {
+		return u
+	}
+	ties := (a - a1) + (b1 - b)
+	if ties == k-(b-a) {
+		return u // no tie outside the window
+	}
+	v := rng.IntN(ties)
+	if v < a-a1 {
+		return a1 + v
+	}
+	return b + v - (a - a1)
 }
 
 // normalImpute imputes each missing row by its predicted mean at beta*
