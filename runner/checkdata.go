@@ -42,6 +42,9 @@ func CheckData(p *plan.Plan) ([]string, error) {
 		if w := ProfileOutsideWarning(r.Outcome, profileOutside(a, newSourceRanges(ld.Design, ld.Data), r.Options.Keep)); w != "" {
 			warnings = append(warnings, w)
 		}
+		if w := ProfileUndefinedWarning(r.Outcome, profileUndefined(a, &OutcomeResult{Design: ld.Design, Data: ld.Data})); w != "" {
+			warnings = append(warnings, w)
+		}
 		scopes = append(scopes, hypothesisScope(p.Outcomes[i].Column, ld.Design, ld.Data.Categories))
 		// The new rows to predict: read through the design as run reads
 		// them after the fits (an undeclared level, a value a
@@ -52,7 +55,7 @@ func CheckData(p *plan.Plan) ([]string, error) {
 			if err != nil {
 				return nil, err
 			}
-			warnings = append(warnings, nr.notPredictedWarnings()...)
+			warnings = append(warnings, nr.notPredictedWarnings(r.Outcome)...)
 		}
 		if a.Imputed != nil {
 			if _, _, _, err := imputedSets(a, r); err != nil {
@@ -83,6 +86,9 @@ func FewClustersWarnings(res *Result) []string {
 			out = append(out, fmt.Sprintf("outcome %s: %s", an.Outcomes[i].Outcome, w))
 		}
 		if w := ProfileOutsideWarning(an.Outcomes[i].Outcome, or.ProfileOutside); w != "" {
+			out = append(out, w)
+		}
+		if w := ProfileUndefinedWarning(an.Outcomes[i].Outcome, profileUndefined(an, or)); w != "" {
 			out = append(out, w)
 		}
 	}
@@ -142,6 +148,9 @@ func NotCheckedWithoutData(p *plan.Plan) []string {
 	}
 	if len(p.Inference.Hypotheses) > 0 {
 		out = append(out, "inference.hypotheses: the boundaries and level columns that the data's categories and levels give the models")
+	}
+	if len(p.Inference.Profile) > 0 {
+		out = append(out, "inference.profile: whether it lies outside the population fitted, and whether every term can be computed at it")
 	}
 	if p.Inference.PredictPath != "" {
 		out = append(out, "inference.predict: the new rows read through each outcome's design (undeclared levels, levels no row used has, values a transformation cannot take)")

@@ -113,16 +113,16 @@ func (nr *NewRows) designOf(dz *design.Design) ([]float64, int, error) {
 }
 
 // notPredictedWarnings are the warnings of `ordplan check` for the new
-// rows that will not be predicted, one per row, at most newRowsWarned
+// rows of an outcome that will not be predicted, one per row, at most newRowsWarned
 // (then one saying how many more).
-func (nr *NewRows) notPredictedWarnings() []string {
+func (nr *NewRows) notPredictedWarnings(outcome string) []string {
 	var out []string
 	for k, u := range nr.Unpredicted {
 		if k == newRowsWarned {
-			out = append(out, fmt.Sprintf("inference.predict: %d more rows of %s will not be predicted", len(nr.Unpredicted)-k, nr.File))
+			out = append(out, fmt.Sprintf("outcome %s: inference.predict: %d more rows of %s will not be predicted", outcome, len(nr.Unpredicted)-k, nr.File))
 			break
 		}
-		out = append(out, fmt.Sprintf("inference.predict: %s:%d: %s: this row will not be predicted (the other rows will be)", nr.File, u.Line, u.Reason))
+		out = append(out, fmt.Sprintf("outcome %s: inference.predict: %s:%d: %s: this row will not be predicted (the other rows will be)", outcome, nr.File, u.Line, u.Reason))
 	}
 	return out
 }

@@ -1,6 +1,7 @@
 package runner
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"slices"
@@ -162,6 +163,33 @@ func ProfileOutsideWarning(outcome string, why []string) string {
 		return ""
 	}
 	return fmt.Sprintf("outcome %s: inference.profile lies outside the population the model is fitted to (%s): the marginal effects and pairs of levels at the profile rest there on the model's form alone, and their intervals do not show it", outcome, strings.Join(why, "; "))
+}
+
+// profileUndefined says why a term of the model cannot be computed at
+// the plan's profile (a value a transformation cannot take: the log of
+// a value not positive), judged by the design row as a new row's is
+// (designOf, T29); "" when it can, or without a profile. The profile's
+// row is the one its marginal effects take (representative).
+func profileUndefined(an *Analysis, or *OutcomeResult) string {
+	if len(an.Inference.Profile) == 0 || or.Design == nil || or.Data == nil {
+		return ""
+	}
+	x := make([]float64, len(or.Design.Columns))
+	var u *design.UndefinedError
+	if err := or.Design.Row(or.representative(an.Inference.Profile, true), x); errors.As(err, &u) {
+		return u.Reason()
+	}
+	return ""
+}
+
+// ProfileUndefinedWarning is the warning of check and run when a term
+// cannot be computed at the plan's profile (why: profileUndefined's
+// reason); "" when it can.
+func ProfileUndefinedWarning(outcome, why string) string {
+	if why == "" {
+		return ""
+	}
+	return fmt.Sprintf("outcome %s: inference.profile: %s: the marginal effects and pairs of levels at the profile cannot be computed (the report says \"Not computed\"); set the profile to a value every term can take", outcome, why)
 }
 
 // sourceRanges is the range of each numeric source of a design over the

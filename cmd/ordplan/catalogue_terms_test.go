@@ -298,7 +298,7 @@ func termItems(dir string) []badInput {
 			check: func(t *testing.T, dir, out, errs string) {
 				plan := filepath.Join(dir, "T29.yaml")
 				_, e, code := runCLI("check", plan)
-				if want := "warning: " + plan + `: inference.predict: zero.csv:3: column "x": log(0) is undefined: the value is not positive: this row will not be predicted (the other rows will be)` + "\n"; code != 0 || !strings.Contains(e, want) {
+				if want := "warning: " + plan + `: outcome y: inference.predict: zero.csv:3: column "x": log(0) is undefined: the value is not positive: this row will not be predicted (the other rows will be)` + "\n"; code != 0 || !strings.Contains(e, want) {
 					t.Errorf("check: exit %d, want the warning %q in\n%s", code, want, e)
 				}
 				b, err := os.ReadFile(filepath.Join(dir, "T29-out", "predictions-y.csv"))
@@ -324,6 +324,23 @@ func termItems(dir string) []badInput {
 				dec, err := os.ReadFile(filepath.Join(dir, "T29-out", "decisions.json"))
 				if want := `"new_rows_not_predicted": [`; err != nil || !strings.Contains(string(dec), want) {
 					t.Errorf("decisions.json does not list the row not predicted (%v)", err)
+				}
+			}},
+		{id: "T30", name: "a profile that a term cannot be computed at (log of 0): warned by check and run, its effects not computed", args: []string{"run"}, setup: writeTermsData,
+			plan: termsEdit("predictors:", "subset:\n  - {column: x, at_least: 0}\npredictors:", "[site, x]", "[site, {name: lx, column: x, log: {shift: 0}}]", "rules:", "inference: {marginal_effects: [profile], profile: {x: 0}}\nrules:"), code: 0,
+			want: []string{"y: chosen: cumulative/parallel/logit"},
+			check: func(t *testing.T, dir, out, errs string) {
+				plan := filepath.Join(dir, "T30.yaml")
+				want := "warning: " + plan + `: outcome y: inference.profile: column "x": log(0) is undefined: the value is not positive: the marginal effects and pairs of levels at the profile cannot be computed (the report says "Not computed"); set the profile to a value every term can take` + "\n"
+				if !strings.Contains(errs, want) {
+					t.Errorf("run: want the warning %q in\n%s", want, errs)
+				}
+				if _, e, code := runCLI("check", plan); code != 0 || !strings.Contains(e, want) {
+					t.Errorf("check: exit %d, want the warning %q in\n%s", code, want, e)
+				}
+				rep, err := os.ReadFile(filepath.Join(dir, "T30-out", "report.md"))
+				if w := `Not computed: column "x": log(0) is undefined`; err != nil || !strings.Contains(string(rep), w) {
+					t.Errorf("report.md (%v): want %q", err, w)
 				}
 			}},
 		{id: "W23", name: "a profile outside the population fitted: failing a subset condition, beyond the data (warned, flagged beside its tables)", args: []string{"run"}, setup: writeTermsData,

@@ -35,7 +35,7 @@ func TestCheckNoDataSaysWhatItLeftOut(t *testing.T) {
 	full := strings.Replace(goodPlan, "  file: d.csv\n", "  file: clu.csv\n  weights: c\n  cluster: two\n", 1)
 	full = strings.Replace(full, "predictors: [a, b]", "categorical:\n  b: {levels: [\"0\", \"1\"], unobserved: drop}\npredictors: [a, b, {column: d, spline: {knots: [-1, 0, 40]}}, {column: big, spline: {quantiles: [0.1, 0.5, 0.9]}}]", 1)
 	full = strings.Replace(full, "reject_unconverged: true", "reject_if_simpler_is_close: {max_difference: 0.05, grid: {b: [\"1\"]}}", 1)
-	full += "covariance: clustered\nsubset:\n  - {column: a, at_least: -5}\ndictionary:\n  a: {range: [-10, 10]}\n  b: {label: B}\n  d: {label: D}\n  big: {label: Big}\n  c: {label: weight}\n  two: {label: cluster}\ninference:\n  hypotheses: [\"a = 0\"]\n  predict: new.csv\n"
+	full += "covariance: clustered\nsubset:\n  - {column: a, at_least: -5}\ndictionary:\n  a: {range: [-10, 10]}\n  b: {label: B}\n  d: {label: D}\n  big: {label: Big}\n  c: {label: weight}\n  two: {label: cluster}\ninference:\n  hypotheses: [\"a = 0\"]\n  predict: new.csv\n  marginal_effects: [profile]\n  profile: {a: 1}\n"
 	fp := filepath.Join(dir, "full.yaml")
 	os.WriteFile(fp, []byte(full), 0o644)
 	out, errs, code = runCLI("check", "--no-data", fp)
@@ -56,6 +56,7 @@ func TestCheckNoDataSaysWhatItLeftOut(t *testing.T) {
 		"dictionary: the data's values against the declared ranges, values and missing-value codes",
 		"inference.hypotheses: the boundaries and level columns that the data's categories and levels give the models",
 		"inference.predict: the new rows read through each outcome's design (undeclared levels, levels no row used has, values a transformation cannot take)",
+		"inference.profile: whether it lies outside the population fitted, and whether every term can be computed at it",
 		"outcomes: the categories the rows used have (a declared category no row has is refused; at least two are needed)",
 		"predictors: constant or collinear design columns (the rank of each outcome's design on the rows used)",
 		"predictors: spline knots at quantiles that tie in the rows used",
