@@ -84,3 +84,40 @@ rules:
 		t.Errorf("models:\n%s", models)
 	}
 }
+
+// With two categories, the methods of a stepwise selection and of partial
+// models say what one boundary makes of them: nothing to select, the same
+// model as parallel effects; not that effects differ across boundaries.
+func TestBinaryStepwiseMethods(t *testing.T) {
+	dir := t.TempDir()
+	var b strings.Builder
+	b.WriteString("x,g,y\n")
+	for i := range 160 {
+		fmt.Fprintf(&b, "%d,%d,%s\n", i%9, i%2, []string{"no", "yes"}[(i*7+i%9+i%2)%5/3])
+	}
+	if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	src := `version: 1
+data: {file: d.csv}
+outcomes: [{column: y, categories: ["no", "yes"]}]
+predictors: [x, g]
+models:
+  approaches: [cumulative]
+  effects: [parallel, partial]
+  links: [logit]
+  partial: {select: {method: stepwise, alpha: 0.05, test: wald}}
+rules:
+  - choose: {by: aic}
+`
+	md := string(renderSource(t, dir, src, 1)["report.md"])
+	methods := md[strings.Index(md, "## Methods"):strings.Index(md, "## Reproducibility")]
+	hasAll(t, "methods", methods,
+		"partial effects (with one category boundary, the same model as parallel effects) [",
+		"had nothing to test: with one category boundary each predictor has a single slope, so no parallel constraint could be tested or imposed.")
+	for _, bad := range []string{"free to differ across category boundaries", "it left", "constrained"} {
+		if strings.Contains(methods, bad) {
+			t.Errorf("methods hold %q:\n%s", bad, methods)
+		}
+	}
+}

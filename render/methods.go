@@ -138,8 +138,16 @@ func writeMethods(d *doc, r *runner.Result) {
 			case fit.ParallelEffects:
 				effects = append(effects, "parallel effects")
 			case fit.PartialEffects:
+				if binary(or) {
+					effects = append(effects, "partial effects (with one category boundary, the same model as parallel effects) "+c.cite("peterson"))
+					break
+				}
 				effects = append(effects, "partial effects free to differ across category boundaries"+partialSetWords(r, or, false)+" "+c.cite("peterson"))
 			case fit.ConstrainedEffects:
+				if binary(or) {
+					effects = append(effects, "constrained partial effects (with one category boundary, the same model as parallel effects) "+c.cite("peterson", "hauser"))
+					break
+				}
 				effects = append(effects, "partial effects constrained to a common factor across boundaries"+partialSetWords(r, or, true)+" "+c.cite("peterson", "hauser"))
 			case fit.NonparallelEffects:
 				effects = append(effects, "fully nonparallel effects")
@@ -153,8 +161,10 @@ func writeMethods(d *doc, r *runner.Result) {
 		}
 		s = append(s, fmt.Sprintf("The candidate models, %s (plan SHA-256 %s%s), crossed %s with %s, using the %s link%s.",
 			fixed, short(p.Hash), registeredAs(r), words.AndList(comps), words.AndList(effects), words.AndList(wordList(p.Models.Links)), plural(len(p.Models.Links))))
-		if sel := p.Models.Partial.Select; sel != nil {
-			s = append(s, fmt.Sprintf("The predictors allowed non-parallel effects were selected by backward stepwise imposition of parallel constraints with %s tests at alpha = %g %s, separately for each approach under the %s link%s; %s.", sel.Test.Title(), sel.Alpha, c.cite("williams"), p.Models.Links[0], firstLink(p.Models.Links), selectedWords(or)))
+		if sel := p.Models.Partial.Select; sel != nil && binary(or) {
+			s = append(s, fmt.Sprintf("The plan's backward stepwise selection of the predictors allowed non-parallel effects %s had nothing to test: with one category boundary each predictor has a single slope, so no parallel constraint could be tested or imposed.", c.cite("williams")))
+		} else if sel != nil {
+			s = append(s, fmt.Sprintf("The predictors allowed non-parallel effects were selected by backward stepwise imposition of parallel constraints with %s tests at alpha = %g %s, separately for each approach under the %s link%s; %s.", sel.Test.Title(), sel.Alpha, c.cite("williams"), p.Models.Links[0], firstLink(p.Models.Links), selectedWords(or, p.Models)))
 		}
 		if len(p.Tests.ParallelLines) > 0 && binary(or) {
 			s = append(s, "With two categories the parallel-lines assumption has nothing to test (every effect structure gives the same model), so no parallel-lines test was computed.")
@@ -448,15 +458,24 @@ func partialSetWords(r *runner.Result, or *runner.OutcomeResult, constrained boo
 }
 
 // selectedWords says which predictors the stepwise selection left free
-// in each approach's partial and constrained models.
-func selectedWords(or *runner.OutcomeResult) string {
+// in each approach's partial and constrained models, naming only the
+// kinds of model the grid m has.
+func selectedWords(or *runner.OutcomeResult, m plan.Models) string {
+	var kinds []string
+	if m.HasEffects(fit.PartialEffects) {
+		kinds = append(kinds, "partial")
+	}
+	if m.HasEffects(fit.ConstrainedEffects) {
+		kinds = append(kinds, "constrained")
+	}
+	none := "none of their " + strings.Join(kinds, " or ") + " models was fitted"
 	var left, failed []string
 	for _, s := range or.Stepwise {
 		switch {
 		case s.Result == nil || !s.Result.OK:
 			failed = append(failed, s.Approach.String())
 		case len(s.Result.FinalNonparallel) == 0:
-			left = append(left, fmt.Sprintf("no predictor free in the %s models (so none of their partial or constrained models was fitted)", s.Approach))
+			left = append(left, fmt.Sprintf("no predictor free in the %s models (so %s)", s.Approach, none))
 		default:
 			left = append(left, fmt.Sprintf("%s free in the %s models", words.AndList(mdTexts(s.Result.FinalNonparallel)), s.Approach))
 		}
@@ -466,7 +485,7 @@ func selectedWords(or *runner.OutcomeResult) string {
 		out = append(out, "it left "+words.AndList(left))
 	}
 	if len(failed) > 0 {
-		out = append(out, fmt.Sprintf("for the %s models it could not be completed, so none of their partial or constrained models was fitted", words.AndList(failed)))
+		out = append(out, fmt.Sprintf("for the %s models it could not be completed, so %s", words.AndList(failed), none))
 	}
 	return strings.Join(out, "; ")
 }

@@ -7,6 +7,10 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"ordplan/plan"
+	"ordplan/runner"
+	"ordplan/runner/fit"
 )
 
 // methodsPlan has every part of a model the methods draft must name: a
@@ -108,4 +112,24 @@ func TestMethodsNameTheModel(t *testing.T) {
 	)
 	// The same words as the table of terms.
 	hasAll(t, "the table of terms", md, "| x1&g | the interaction of x1 and g, the products of their columns | x1&g.a, x1&g.c |")
+}
+
+// The stepwise sentence names only the kinds of model the grid has.
+func TestSelectedWordsNameTheGridsKinds(t *testing.T) {
+	or := &runner.OutcomeResult{Stepwise: []runner.StepwiseRecord{
+		{Approach: fit.Cumulative, Result: &fit.StepwiseResult{OK: true}},
+		{Approach: fit.Stage},
+	}}
+	for _, c := range []struct {
+		effects []fit.Structure
+		want    string
+	}{
+		{[]fit.Structure{fit.ParallelEffects, fit.PartialEffects}, "it left no predictor free in the cumulative models (so none of their partial models was fitted); for the stage models it could not be completed, so none of their partial models was fitted"},
+		{[]fit.Structure{fit.ParallelEffects, fit.ConstrainedEffects}, "(so none of their constrained models was fitted)"},
+		{[]fit.Structure{fit.PartialEffects, fit.ConstrainedEffects}, "(so none of their partial or constrained models was fitted)"},
+	} {
+		if got := selectedWords(or, plan.Models{Effects: c.effects}); !strings.Contains(got, c.want) {
+			t.Errorf("%v: %q lacks %q", c.effects, got, c.want)
+		}
+	}
 }
