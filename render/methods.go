@@ -345,6 +345,8 @@ func subsetMethods(p *plan.Plan, ds *data.Dataset, imputed bool) string {
 	if ds.RowsUndecided == 0 {
 		// Every row counted under a missing column met the conditions.
 		why = dropReasons(p, ds)
+	} else if w, ok := metDropReasons(p, ds, in-ds.N, imputed); ok {
+		why = w
 	}
 	used := fmt.Sprintf("Of the %d rows that met the conditions, %d were used and %d were dropped before any model was fitted%s.", in, ds.N, in-ds.N, why)
 	if in == ds.N {
@@ -359,16 +361,80 @@ func subsetMethods(p *plan.Plan, ds *data.Dataset, imputed bool) string {
 // none were.
 func dropReasons(p *plan.Plan, ds *data.Dataset) string {
 	var miss []data.DropCount
-	missing, zero := 0, 0
+	zero := 0
 	for _, dc := range ds.Dropped {
 		switch {
 		case dc.Subset:
 		case dc.ZeroWeight(p.Data.Weights):
 			zero += dc.Rows
 		default:
-			missing += dc.Rows
 			miss = append(miss, dc)
 		}
+	}
+	return dropReasonsOf(p, miss, zero)
+}
+
+// metDropReasons is dropReasons for the rows that met the subset's
+// conditions when other rows could not be judged (they miss a column a
+// condition reads, and are counted apart): the rows of each missing-value
+// pattern that misses no such column, under the first used column it
+// misses, as the reader counts them, and the rows of zero weight. ok is
+// false when the counts cannot be made so (imputed data, whose reader
+// counts a row under the first column imputation does not fill) or do not
+// add up to dropped, the rows that met the conditions and were not used.
+func metDropReasons(p *plan.Plan, ds *data.Dataset, dropped int, imputed bool) (string, bool) {
+	mt := ds.Missing
+	if imputed || mt == nil {
+		return "", false
+	}
+	read := func(col string) bool {
+		return slices.ContainsFunc(p.Subset, func(c data.Condition) bool { return c.Column == col })
+	}
+	counts := make([]int, len(mt.Columns))
+	total := 0
+	for _, pt := range mt.Patterns {
+		first := -1
+		for j, m := range pt.Missing {
+			if !m {
+				continue
+			}
+			if read(mt.Columns[j]) {
+				first = -1
+				break
+			}
+			if first < 0 {
+				first = j
+			}
+		}
+		if first >= 0 {
+			counts[first] += pt.Rows
+			total += pt.Rows
+		}
+	}
+	var miss []data.DropCount
+	for j, n := range counts {
+		if n > 0 {
+			miss = append(miss, data.DropCount{Column: mt.Columns[j], Rows: n})
+		}
+	}
+	zero := 0
+	for _, dc := range ds.Dropped {
+		if dc.ZeroWeight(p.Data.Weights) {
+			zero += dc.Rows
+		}
+	}
+	if total+zero != dropped {
+		return "", false
+	}
+	return dropReasonsOf(p, miss, zero), true
+}
+
+// dropReasonsOf words dropReasons from the rows dropped for a missing
+// value, under the first used column each misses, and of zero weight.
+func dropReasonsOf(p *plan.Plan, miss []data.DropCount, zero int) string {
+	missing := 0
+	for _, dc := range miss {
+		missing += dc.Rows
 	}
 	var missWhy, zeroWhy string
 	switch {

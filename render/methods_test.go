@@ -10,6 +10,7 @@ import (
 
 	"ordplan/plan"
 	"ordplan/runner"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 
@@ -131,5 +132,35 @@ func TestSelectedWordsNameTheGridsKinds(t *testing.T) {
 		if got := selectedWords(or, plan.Models{Effects: c.effects}); !strings.Contains(got, c.want) {
 			t.Errorf("%v: %q lacks %q", c.effects, got, c.want)
 		}
+	}
+}
+
+// With a subset and rows that miss a column its conditions read, the rows
+// that met the conditions and were dropped are counted by reason apart
+// from the rows that could not be judged: each pattern missing no
+// condition's column under its first missing column, and zero weights.
+func TestMetDropReasonsCountApart(t *testing.T) {
+	p := &plan.Plan{}
+	p.Data.Weights = "w"
+	p.Subset = []data.Condition{{Column: "x"}}
+	ds := &data.Dataset{
+		Missing: &data.MissingTable{Columns: []string{"y", "x", "inc", "z", "w"}, Patterns: []data.MissingPattern{
+			{Missing: []bool{false, true, false, false, false}, Rows: 15},
+			{Missing: []bool{false, false, true, false, false}, Rows: 9},
+			{Missing: []bool{false, true, true, false, false}, Rows: 2},
+			{Missing: []bool{false, false, true, true, false}, Rows: 1},
+			{Missing: []bool{false, false, false, true, false}, Rows: 4},
+		}},
+		Dropped: []data.DropCount{{Column: "x", Rows: 17}, {Column: "inc", Rows: 10}, {Column: "z", Rows: 4}, {Column: "w = 0", Rows: 18}, {Column: "outside the subset x", Rows: 26, Subset: true}},
+	}
+	got, ok := metDropReasons(p, ds, 32, false)
+	if want := ": 14 for missing values (each row counted under the first used column it misses: inc 10, z 4) and 18 for a weight of 0 in `w`"; !ok || got != want {
+		t.Errorf("got %q (%v), want %q", got, ok, want)
+	}
+	if _, ok := metDropReasons(p, ds, 33, false); ok {
+		t.Errorf("counts that do not add up to the rows dropped are given")
+	}
+	if _, ok := metDropReasons(p, ds, 32, true); ok {
+		t.Errorf("counts given on imputed data")
 	}
 }

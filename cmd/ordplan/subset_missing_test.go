@@ -38,8 +38,9 @@ rules:
 // the code written otherwise), y on every 23rd and x on every 29th. It
 // returns the counts a reader of the rows makes by hand: rows outside
 // (age present and under 18), rows whose age is missing, and of the rows
-// that meet the condition those missing y or x.
-func subsetMissingData(t *testing.T, path string) (outside, unknown, met, incomplete int) {
+// that meet the condition those missing y or x, and of these those
+// missing y (the first column read).
+func subsetMissingData(t *testing.T, path string) (outside, unknown, met, incomplete, missY int) {
 	rng := rand.New(rand.NewPCG(11, 0))
 	var b strings.Builder
 	b.WriteString("y,x,age\n")
@@ -81,6 +82,9 @@ func subsetMissingData(t *testing.T, path string) (outside, unknown, met, incomp
 			if i%23 == 0 || i%29 == 0 {
 				incomplete++
 			}
+			if i%23 == 0 {
+				missY++
+			}
 		}
 	}
 	if err := os.WriteFile(path, []byte(b.String()), 0o644); err != nil {
@@ -97,7 +101,7 @@ func subsetMissingData(t *testing.T, path string) (outside, unknown, met, incomp
 // says why.
 func TestSubsetColumnMissing(t *testing.T) {
 	dir := t.TempDir()
-	outside, unknown, met, incomplete := subsetMissingData(t, filepath.Join(dir, "data.csv"))
+	outside, unknown, met, incomplete, missY := subsetMissingData(t, filepath.Join(dir, "data.csv"))
 	if outside == 0 || unknown == 0 || incomplete == 0 {
 		t.Fatalf("the data lack a case: outside %d, unknown %d, incomplete %d", outside, unknown, incomplete)
 	}
@@ -112,7 +116,7 @@ func TestSubsetColumnMissing(t *testing.T) {
 		}
 		md, _ := os.ReadFile(filepath.Join(out, "report.md"))
 		used := met - incomplete
-		wantUsed := fmt.Sprintf("Of the %d rows that met the conditions, %d were used and %d were dropped before any model was fitted for missing values or zero weight.", met, used, incomplete)
+		wantUsed := fmt.Sprintf("Of the %d rows that met the conditions, %d were used and %d were dropped before any model was fitted for missing values (each row counted under the first used column it misses: y %d, x %d).", met, used, incomplete, missY, incomplete-missY)
 		notImputed := ""
 		if mode == "impute" {
 			used = met
