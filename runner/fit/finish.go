@@ -1022,59 +1022,192 @@ func (src *source) describeSeparation(m Model, ly *layout, theta, vec []float64,
 	return s
 }
 
-// nameRecession names the parameters of a proved separation. The changes
-// of the parameters that move no linear predictor a row's probability
-// reads leave the log-likelihood constant: the null space of the
-// programme's inequalities written in the parameters themselves (their
-// tangent at theta, tangentVariables; exact for all but constrained
-// effects), found from the singular values of that matrix (columns
-// scaled to largest absolute value 1, each the largest change of a
-// linear predictor per unit of its parameter; a singular value below
-// 1e-9 of the largest counts as zero). A parameter carrying a quarter or
-// more of some unit vector of that null space is not determined by the
-// data (NotDetermined). The direction of recession without its part in
-// the null space is the change along which the log-likelihood rises to its
-// supremum: the parameters carrying a quarter or more of its largest
-// component (in the same scaled units) diverge (Parameters), with their
-// predictors and category boundaries.
+// nameRecession names the parameters of a proved separation, in
+// variables in which the linear predictors are linear: the cutpoints and
+// slopes, the effects phi_m g at each boundary of a constrained
+// predictor alone in its group (namingVariables; its g and phi are not
+// told apart by the data when some boundary's effect diverges, since
+// only their products enter), and for a group of several the tangent of
+// g and phi at theta. The programme's inequalities M d >= 0 are written
+// in those variables (columns scaled to largest absolute value 1, each
+// the largest change of a linear predictor per unit of its variable).
+//
+// The changes with M d = 0 leave the log-likelihood constant: a variable
+// carrying a quarter or more of some unit vector of that null space
+// (found from the singular values; one below 1e-9 of the largest counts
+// as zero) is not determined by the data (NotDetermined). Every other
+// variable that some direction of recession moves diverges
+// (Parameters): the inequalities some direction raises strictly are
+// found by the programme again and again, each time asked to raise one
+// not yet raised (positiveRows); the directions of recession then fill
+// the subspace where the others hold as equalities, and a variable
+// carrying a quarter or more of some unit vector of it moves along
+// some. The two lists never share a name. The predictors and category
+// boundaries are those of the diverging variables.
 func (src *source) nameRecession(s *Separation, m Model, ly *layout, theta []float64, rec *recession) {
-	P := len(theta)
-	M := recessionRows(src.rows, rec.rows, m, ly, tangentVariables(ly, theta))
-	u := make([]float64, P)
-	for i := range u {
-		u[i] = rec.step[i] * M.scale[i]
+	nv := namingVariables(ly, theta, src.predictors)
+	vars := make([]lpVariable, len(nv))
+	for i, v := range nv {
+		vars[i] = v.lpVariable
 	}
-	var null [][]float64
-	if M.R > 0 {
-		var svd mat.SVD
-		if svd.Factorize(mat.NewDense(M.R, M.V, M.a), mat.SVDFullV) {
-			sv := svd.Values(nil)
-			var V mat.Dense
-			svd.VTo(&V)
-			for j := 0; j < P; j++ {
-				if j >= len(sv) || !(sv[j] > 1e-9*sv[0]) {
-					null = append(null, mat.Col(nil, j, &V))
-				}
+	M := recessionRows(src.rows, rec.rows, m, ly, vars)
+	pos, ok := positiveRows(M)
+	if !ok {
+		// The programme did not settle: the direction found, as the
+		// signs name one.
+		T := recessionRows(src.rows, rec.rows, m, ly, tangentVariables(ly, theta))
+		u := make([]float64, len(theta))
+		for i := range u {
+			u[i] = rec.step[i] * T.scale[i]
+		}
+		s.nameDirection(ly, u, src.predictors, src.categories)
+		return
+	}
+	all := nullShares(M, nil)
+	moved := nullShares(M, pos)
+	preds := map[int]bool{}
+	bounds := map[int]bool{}
+	for i, v := range nv {
+		switch {
+		case all[i] >= 1.0/16:
+			s.NotDetermined = append(s.NotDetermined, v.name)
+		case moved[i] >= 1.0/16:
+			s.Parameters = append(s.Parameters, v.name)
+			if v.k >= 0 {
+				preds[v.k] = true
+			}
+			if v.m >= 0 {
+				bounds[v.m] = true
 			}
 		}
 	}
-	share := make([]float64, P) // the diagonal of the projection on the null space
-	for _, n := range null {
-		dot := 0.0
-		for i, v := range n {
-			dot += v * u[i]
+	for _, k := range sortedKeys(preds) {
+		s.Predictors = append(s.Predictors, src.predictors[k])
+	}
+	for _, b := range sortedKeys(bounds) {
+		s.Boundaries = append(s.Boundaries, BoundaryLabel(src.categories, b))
+	}
+}
+
+// positiveRows finds the rows of M that some direction d with M d >= 0
+// makes positive: the programme is asked for a direction raising some
+// row not yet found, until it finds none (each answer adds at least
+// one). ok is false when it did not settle.
+func positiveRows(M *lpRows) (pos []bool, ok bool) {
+	pos = make([]bool, M.R)
+	on := make([]bool, M.R)
+	for range M.R + 1 {
+		for i := range on {
+			on[i] = !pos[i]
 		}
-		for i, v := range n {
-			share[i] += v * v
-			u[i] -= dot * v
+		d, settled := recessionSolveOn(M, on)
+		switch {
+		case !settled:
+			return nil, false
+		case d == nil:
+			return pos, true
+		}
+		grew := false
+		for i := 0; i < M.R; i++ {
+			v := 0.0
+			for j, a := range M.row(i) {
+				v += a * d[j] * M.scale[j]
+			}
+			if v > 1e-7 && !pos[i] {
+				pos[i], grew = true, true
+			}
+		}
+		if !grew {
+			return nil, false
 		}
 	}
-	s.nameDirection(ly, u, src.predictors, src.categories)
-	for i, sh := range share {
-		if sh >= 1.0/16 {
-			s.NotDetermined = append(s.NotDetermined, ly.params[i].name)
+	return nil, false
+}
+
+// nullShares returns, for each column of M, the diagonal of the
+// projection on the null space of M's rows i without skip[i] (all rows
+// when skip is nil): the square of the largest component of that column
+// in a unit vector of it. A singular value below 1e-9 of the largest
+// counts as zero; with no rows, every column's share is 1.
+func nullShares(M *lpRows, skip []bool) []float64 {
+	var a []float64
+	R := 0
+	for i := 0; i < M.R; i++ {
+		if skip == nil || !skip[i] {
+			a = append(a, M.row(i)...)
+			R++
 		}
 	}
+	share := make([]float64, M.V)
+	if R == 0 {
+		for i := range share {
+			share[i] = 1
+		}
+		return share
+	}
+	var svd mat.SVD
+	if !svd.Factorize(mat.NewDense(R, M.V, a), mat.SVDFullV) {
+		return share
+	}
+	sv := svd.Values(nil)
+	var V mat.Dense
+	svd.VTo(&V)
+	for j := 0; j < M.V; j++ {
+		if j < len(sv) && sv[j] > 1e-9*sv[0] {
+			continue
+		}
+		for i := 0; i < M.V; i++ {
+			share[i] += V.At(i, j) * V.At(i, j)
+		}
+	}
+	return share
+}
+
+// namedVariable is a variable in which a separation's parameters are
+// named: its change of the cutpoints and slopes, its name, and the
+// predictor (k) and boundary (m, 0-based) it belongs to (-1: none).
+type namedVariable struct {
+	lpVariable
+	name string
+	k, m int
+}
+
+// namingVariables are the variables of nameRecession: each parameter as
+// tangentVariables has it, except that a constrained predictor alone in
+// its group gives its effect at each boundary m, phi_m g (named g's
+// name at the first boundary, where phi_1 = 1, and "phi[m]*name" at the
+// others), as the programme moves it (lpVariables).
+func namingVariables(ly *layout, theta []float64, predictors []string) []namedVariable {
+	q, K := ly.J-1, ly.K
+	tv := tangentVariables(ly, theta)
+	var out []namedVariable
+	for i, pa := range ly.params {
+		v := namedVariable{lpVariable: tv[i], name: pa.name, k: -1, m: -1}
+		alone := (pa.kind == pGamma || pa.kind == pPhi) && len(ly.groups[pa.group]) == 1
+		switch {
+		case alone && pa.kind == pPhi:
+			continue // given with its predictor's g
+		case alone:
+			for j := 0; j < q; j++ {
+				w := make([]float64, q*K)
+				w[j*K+pa.k] = 1
+				name := predictors[pa.k]
+				if j > 0 {
+					name = ly.params[ly.phiIndex[pa.group][j]].name + "*" + name
+				}
+				out = append(out, namedVariable{lpVariable: lpVariable{cut: -1, w: w}, name: name, k: pa.k, m: j})
+			}
+			continue
+		case pa.kind == pCut || pa.kind == pPhi:
+			v.m = pa.m
+		case pa.kind == pFree:
+			v.k, v.m = pa.k, pa.m
+		default:
+			v.k = pa.k
+		}
+		out = append(out, v)
+	}
+	return out
 }
 
 // tangentVariables are the parameters as variables of the programme: the

@@ -250,9 +250,11 @@ type Result struct {
 
 // Separation describes a fit with no finite maximum.
 type Separation struct {
-	// Parameters: those that diverge when Proved (along the direction of
-	// recession, in which the log-likelihood rises to its supremum); else
-	// those along the direction in which the signs were seen.
+	// Parameters: those that diverge when Proved (that some direction of
+	// recession, in which the log-likelihood rises to its supremum,
+	// moves); else those along the direction in which the signs were
+	// seen. A constrained predictor x alone in its group is named by its
+	// effects at the boundaries, "x" and "phi[m]*x" (nameRecession).
 	Parameters []string `json:"parameters"`
 	Predictors []string `json:"predictors"` // the predictors of Parameters, and of Evidence
 	Boundaries []string `json:"boundaries"` // "lower/upper" category boundaries of Parameters
@@ -260,6 +262,7 @@ type Separation struct {
 	// NotDetermined (Proved only) are the parameters along which the
 	// log-likelihood is constant: no row's probability reads them (or
 	// only a combination of them), so the data do not determine them.
+	// No name is in both lists.
 	NotDetermined []string `json:"not_determined,omitempty"`
 	// Proved: a direction of recession was found in the data (the
 	// log-likelihood keeps rising along it); false when only the signs

@@ -417,6 +417,15 @@ func recessionLP(M *lpRows) []float64 {
 // M d >= 0 and |d_j| <= 1, whose solution d is read from the final basis
 // (d = -lambda, the multipliers of the equality constraints).
 func recessionSolve(M *lpRows) ([]float64, bool) {
+	return recessionSolveOn(M, nil)
+}
+
+// recessionSolveOn is recessionSolve with the objective 1'M d summed over
+// the rows i with on[i] only (all rows when on is nil): it finds a
+// direction that raises one of those strictly while keeping every row's
+// inequality, or says none does (its dual's right side is -M'w, w the
+// indicator of on).
+func recessionSolveOn(M *lpRows, on []bool) ([]float64, bool) {
 	R, V := M.R, M.V
 	if R == 0 || V == 0 {
 		return nil, true
@@ -443,6 +452,9 @@ func recessionSolve(M *lpRows) ([]float64, bool) {
 	}
 	rhs := make([]float64, V)
 	for i := 0; i < R; i++ {
+		if on != nil && !on[i] {
+			continue
+		}
 		for v, a := range M.row(i) {
 			rhs[v] -= a
 		}
@@ -578,7 +590,9 @@ func recessionSolve(M *lpRows) ([]float64, bool) {
 		if s < -1e-7 {
 			return nil, false
 		}
-		most = math.Max(most, s)
+		if on == nil || on[i] {
+			most = math.Max(most, s)
+		}
 	}
 	if most < 1e-6 {
 		return nil, false
