@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"flag"
 	"fmt"
 	"io"
 	"os"
@@ -42,8 +43,12 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	if stop {
 		return code
 	}
+	// Given, --n is judged whatever its value (0 included, the flag's
+	// value when it is not given); not given, assumptions.n is simulated.
+	nGiven := false
+	fs.Visit(func(f *flag.Flag) { nGiven = nGiven || f.Name == "n" })
 	var simulated plan.Rows
-	if *n != 0 {
+	if nGiven {
 		if *n < 10 {
 			fmt.Fprintln(stderr, "ordplan rehearse: --n must be at least 10")
 			return exitUsage
@@ -75,7 +80,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	}
 	defer olock.Unlock()
 	rows := p.Assumptions.N
-	if *n != 0 {
+	if nGiven {
 		rows = *n
 	}
 	var buf bytes.Buffer
