@@ -20,7 +20,7 @@ const compactHelp = `Predictor terms, comma separated (quote the whole list for 
                               |ref=e (reference level; default the first), |coding=sum or
                               |coding=successive (ordered levels only), |drop (drop the column
                               of a listed level no row has, instead of refusing)
-  dose|log                    log(dose); dose|log+1 is log(dose + 1)
+  dose|log                    log(dose); dose|log+1 is log(dose + 1), inc|log-1000 log(inc - 1000)
   dose|sqrt                   square root
   age|centre=mean|scale       centred at the sample mean (or centre=40), divided by the sample SD
   age|polynomial=2            orthogonal polynomial of degree 2 (polynomial=2raw: raw powers)
@@ -128,12 +128,17 @@ func parseCompactTerm(item string, earlier map[string]bool, terms []design.TermS
 			src.Cat.Reference = src.Cat.Levels[0]
 		case k == "ref" || k == "coding" || k == "drop":
 			// applied below, once the levels are known
-		case k == "log" || strings.HasPrefix(k, "log+"):
+		case k == "log" || strings.HasPrefix(k, "log+") || strings.HasPrefix(k, "log-"):
+			// log+1 is log(x + 1), log-1000 log(x - 1000) (log+-1000 too).
 			t.Log = true
 			if k != "log" {
-				x, err := strconv.ParseFloat(strings.TrimPrefix(k, "log+"), 64)
+				num := strings.TrimPrefix(k, "log+")
+				if strings.HasPrefix(k, "log-") {
+					num = strings.TrimPrefix(k, "log")
+				}
+				x, err := strconv.ParseFloat(num, 64)
 				if err != nil {
-					return t, nil, fmt.Errorf("bad shift in %q (want log+NUMBER)", o)
+					return t, nil, fmt.Errorf("bad shift in %q (want log+NUMBER or log-NUMBER)", o)
 				}
 				t.Shift = x
 			}

@@ -50,3 +50,27 @@ func mustJSON(v any) string {
 	b, _ := json.Marshal(v)
 	return string(b)
 }
+
+// The compact form's log takes a shift with either sign: log-1000 is
+// log(x - 1000), the same term as log+-1000; a shift that is not a number
+// is refused naming both forms.
+func TestCompactLogShiftSigns(t *testing.T) {
+	for _, c := range []struct {
+		item  string
+		shift float64
+	}{{"inc|log", 0}, {"inc|log+1", 1}, {"inc|log-1000", -1000}, {"inc|log+-1000", -1000}, {"inc|log-0.5", -0.5}} {
+		spec, err := parseCompactTerms(c.item)
+		if err != nil {
+			t.Errorf("%s: %v", c.item, err)
+			continue
+		}
+		if tm := spec.Terms[0]; !tm.Log || tm.Shift != c.shift {
+			t.Errorf("%s: log %v, shift %v; want shift %v", c.item, tm.Log, tm.Shift, c.shift)
+		}
+	}
+	for _, item := range []string{"inc|log-", "inc|log-x", "inc|log+"} {
+		if _, err := parseCompactTerms(item); err == nil || !strings.Contains(err.Error(), "want log+NUMBER or log-NUMBER") {
+			t.Errorf("%s: %v", item, err)
+		}
+	}
+}
