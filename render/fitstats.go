@@ -247,7 +247,8 @@ func writePatternSplit(d *doc, or *runner.OutcomeResult) {
 func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 	t := or.Lipsitz.Table
 	var legend []string
-	for _, lv := range t.Categories {
+	shown := suffixedNames(t.Categories, " expected", " observed")
+	for _, lv := range shown {
 		legend = append(legend, lv+" expected", lv+" observed")
 	}
 	fr := &chartFrame{id: d.chartID(), title: "Observed and expected by group of predicted score", subtitle: or.Chosen.ID, height: 420,
@@ -272,9 +273,9 @@ func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 			exp[g] = t.Expected[g][j] / t.Weight[g]
 		}
 		col := categoryColor(j, J)
-		l.AddSeries(lv+" expected", lineData(exp), lineStyle(col, 2, false, false)...)
+		l.AddSeries(shown[j]+" expected", lineData(exp), lineStyle(col, 2, false, false)...)
 		fig.series = append(fig.series, figSeries{name: lv, color: col, ys: exp, legend: true}, figSeries{name: lv + " observed", color: col, ys: obs, points: true, noLine: true})
-		l.AddSeries(lv+" observed", lineData(obs), append(lineStyle(col, 0, false, true),
+		l.AddSeries(shown[j]+" observed", lineData(obs), append(lineStyle(col, 0, false, true),
 			charts.WithLineStyleOpts(opts.LineStyle{Color: col, Width: 0, Opacity: opts.Float(0)}))...)
 	}
 	caption := "For each category, the expected share of each group (line) and the observed share (points). Points far from their line, in a pattern, show where the model misfits; groups are ordered by predicted score."

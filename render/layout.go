@@ -2,6 +2,7 @@ package render
 
 import (
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 	"unicode"
@@ -67,6 +68,50 @@ func fitWidth(s string, w float64, m func(string) float64) string {
 		}
 	}
 	return ellipsis
+}
+
+// fitMiddle shortens s to at most w wide by measure m, cutting its middle
+// with an ellipsis so that both its ends show (the end is where names of
+// one kind often differ).
+func fitMiddle(s string, w float64, m func(string) float64) string {
+	if m(s) <= w {
+		return s
+	}
+	rs := []rune(s)
+	for n := len(rs) - 1; n > 1; n-- {
+		h := (n + 1) / 2
+		t := strings.TrimRight(string(rs[:h]), " _-/&.,") + ellipsis + strings.TrimLeft(string(rs[len(rs)-(n-h):]), " _-/&.,")
+		if m(t) <= w {
+			return t
+		}
+	}
+	return ellipsis
+}
+
+// suffixedNames gives each of names as the legend entries name+suffix
+// (one entry per suffix) show it, each entry within legendTextMax: a
+// name too long is cut in its middle (fitMiddle) so that the suffix,
+// which tells one name's entries apart, stays whole, instead of the
+// library cutting the entry's end, suffix included. The names stay whole
+// if cut names would coincide (the library then cuts them).
+func suffixedNames(names []string, suffixes ...string) []string {
+	m := widthAt(legendSize)
+	out := make([]string, len(names))
+	seen := map[string]bool{}
+	for i, n := range names {
+		// A tenth kept free: textWidth's estimate falls short of some
+		// names of lower-case letters and underscores.
+		room := 0.9 * legendTextMax
+		for _, sf := range suffixes {
+			room = min(room, 0.9*legendTextMax-m(sf))
+		}
+		out[i] = fitMiddle(n, room, m)
+		if seen[out[i]] {
+			return slices.Clone(names)
+		}
+		seen[out[i]] = true
+	}
+	return out
 }
 
 // breakAfter ranks the characters a line may break after: a space or an

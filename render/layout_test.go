@@ -149,3 +149,35 @@ func newLineChart(f *chartFrame, xs []float64) *charts.Line {
 	}
 	return l
 }
+
+// Long category names in a legend of name+suffix entries are cut in
+// their middle, leaving the suffix whole and the entries of different
+// suffixes and names apart, within the legend's width; short names stay.
+func TestSuffixedNamesKeepTheSuffix(t *testing.T) {
+	names := []string{"strongly_disagree_with_the_statement", "somewhat_disagree", "somewhat_agree_with_the_statement_as_written", "strongly_agree"}
+	got := suffixedNames(names, " expected", " observed")
+	seen := map[string]bool{}
+	for i, g := range got {
+		for _, sf := range []string{" expected", " observed"} {
+			if w := textWidth(g+sf, legendSize); w > legendTextMax {
+				t.Errorf("%q is %.0f wide, more than %d", g+sf, w, legendTextMax)
+			}
+		}
+		if seen[g] {
+			t.Errorf("%q given twice", g)
+		}
+		seen[g] = true
+		if textWidth(names[i]+" expected", legendSize) <= 0.9*legendTextMax {
+			if g != names[i] {
+				t.Errorf("short name %q changed to %q", names[i], g)
+			}
+			continue
+		}
+		if !strings.Contains(g, ellipsis) || !strings.HasPrefix(names[i], strings.Split(g, ellipsis)[0]) || !strings.HasSuffix(names[i], strings.Split(g, ellipsis)[1]) {
+			t.Errorf("%q is not %q cut in its middle", g, names[i])
+		}
+	}
+	if got := suffixedNames([]string{"a_very_long_category_name_that_ends_alike_one", "a_very_long_category_name_that_ends_alike_two"}, " expected"); got[0] == got[1] {
+		t.Errorf("cut names coincide: %q", got)
+	}
+}
