@@ -20,15 +20,7 @@ import (
 // leaves out the limits about parallel-lines tests and crossing
 // probabilities. The data are invented (x, g on a fixed pattern).
 func TestBinaryOutcomeReport(t *testing.T) {
-	dir := t.TempDir()
-	var b strings.Builder
-	b.WriteString("x,g,y\n")
-	for i := range 160 {
-		fmt.Fprintf(&b, "%d,%d,%s\n", i%9, i%2, []string{"no", "yes"}[(i*7+i%9+i%2)%5/3])
-	}
-	if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644); err != nil {
-		t.Fatal(err)
-	}
+	dir := binaryData(t)
 	src := `version: 1
 data: {file: d.csv}
 outcomes: [{column: y, categories: ["no", "yes"]}]
@@ -89,15 +81,7 @@ rules:
 // models say what one boundary makes of them: nothing to select, the same
 // model as parallel effects; not that effects differ across boundaries.
 func TestBinaryStepwiseMethods(t *testing.T) {
-	dir := t.TempDir()
-	var b strings.Builder
-	b.WriteString("x,g,y\n")
-	for i := range 160 {
-		fmt.Fprintf(&b, "%d,%d,%s\n", i%9, i%2, []string{"no", "yes"}[(i*7+i%9+i%2)%5/3])
-	}
-	if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644); err != nil {
-		t.Fatal(err)
-	}
+	dir := binaryData(t)
 	src := `version: 1
 data: {file: d.csv}
 outcomes: [{column: y, categories: ["no", "yes"]}]
@@ -120,4 +104,20 @@ rules:
 			t.Errorf("methods hold %q:\n%s", bad, methods)
 		}
 	}
+}
+
+// binaryData writes d.csv, 160 invented rows of x, g (a fixed pattern)
+// and a two-category y, into a new folder, and returns the folder.
+func binaryData(t *testing.T) string {
+	t.Helper()
+	dir := t.TempDir()
+	var b strings.Builder
+	b.WriteString("x,g,y\n")
+	for i := range 160 {
+		fmt.Fprintf(&b, "%d,%d,%s\n", i%9, i%2, []string{"no", "yes"}[(i*7+i%9+i%2)%5/3])
+	}
+	if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return dir
 }
