@@ -614,7 +614,7 @@ func negativeAtPooled(at []float64, tol float64, larger, smaller string) string 
 func pooledLROf(sets, rsets []*fit.Data, r, f *fit.Result, rs, fs []*fit.Result, df int) fit.Test {
 	k := f.NParams - r.NParams
 	if k <= 0 {
-		return missingTest(fit.TestLR, "the models are not nested")
+		return missingTest(fit.TestLR, fmt.Sprintf("%s does not have more parameters than %s", f.Name, r.Name))
 	}
 	own, at := make([]float64, len(sets)), make([]float64, len(sets))
 	tol := 0.0
