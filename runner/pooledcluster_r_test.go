@@ -6,6 +6,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -155,6 +156,13 @@ func TestPooledJackknife(t *testing.T) {
 	res := or.Chosen.Result
 	if res.Correction != fit.Jackknife || res.Clusters != sites || res.RefDF != sites-1 {
 		t.Fatalf("pooled fit: correction %v, %d clusters, reference df %g", res.Correction, res.Clusters, res.RefDF)
+	}
+	// The few-cluster warning says that on imputed data G-1 is the
+	// complete-data df, the pooled references fewer.
+	if !slices.ContainsFunc(or.Notes, func(n string) bool {
+		return strings.Contains(n, "holds 8 clusters") && strings.Contains(n, "on imputed data G-1 = 7 is the complete-data degrees of freedom of Rubin's rules")
+	}) {
+		t.Errorf("no few-cluster warning naming the complete-data degrees of freedom in %q", or.Notes)
 	}
 	sets := make([]impute.Set, m)
 	for k := range sets {

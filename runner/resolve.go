@@ -485,12 +485,16 @@ func (a *Analysis) FewClusters(r Reading, ds *data.Dataset) string {
 		return ""
 	}
 	col := r.Options.Cluster
-	if a.Errors.Jackknife() {
-		return fmt.Sprintf("%s: column %q holds %d clusters in the %d rows used, fewer than %d: as asked (%s), standard errors are the delete-one-cluster jackknife (each model refitted %d times, once without each cluster), single estimates and intervals refer to t on G-1 = %d degrees of freedom and joint Wald tests of q restrictions to F(q, %d-q), which keep the rejection rates of true hypotheses nearer their level than the cluster-robust sandwich; a joint Wald test of more than %d restrictions is not computed (the covariance has rank at most G-1)",
-			a.clusterKey(), col, g, ds.N, fit.FewClusters, a.correctionKey(), g, g-1, g, g-1)
+	pooled := ""
+	if a.Imputes() || a.Imputed != nil {
+		pooled = fmt.Sprintf("; on imputed data G-1 = %d is the complete-data degrees of freedom of Rubin's rules, and the pooled estimates and tests refer to t and F on the fewer degrees of freedom of Barnard and Rubin computed from it (the tables give them)", g-1)
 	}
-	return fmt.Sprintf("%s: column %q holds %d clusters in the %d rows used, fewer than %d: cluster-robust standard errors tend to be too small, so their tests may reject a true hypothesis too often even on the references they take (t on G-1 = %d degrees of freedom, F(q, %d-q) for q restrictions), and a joint Wald test of more than G-1 = %d restrictions is not computed (the covariance has rank at most G-1, G the clusters). Where the clusters are a few fixed units, a model with %s as a categorical predictor (one effect per cluster; not for a predictor constant within clusters) and observed or sandwich errors is the safer analysis; otherwise read the clustered p-values and intervals as too small",
-		a.clusterKey(), col, g, ds.N, fit.FewClusters, g-1, g, g-1, col)
+	if a.Errors.Jackknife() {
+		return fmt.Sprintf("%s: column %q holds %d clusters in the %d rows used, fewer than %d: as asked (%s), standard errors are the delete-one-cluster jackknife (each model refitted %d times, once without each cluster), single estimates and intervals refer to t on G-1 = %d degrees of freedom and joint Wald tests of q restrictions to F(q, %d-q), which keep the rejection rates of true hypotheses nearer their level than the cluster-robust sandwich; a joint Wald test of more than %d restrictions is not computed (the covariance has rank at most G-1)%s",
+			a.clusterKey(), col, g, ds.N, fit.FewClusters, a.correctionKey(), g, g-1, g, g-1, pooled)
+	}
+	return fmt.Sprintf("%s: column %q holds %d clusters in the %d rows used, fewer than %d: cluster-robust standard errors tend to be too small, so their tests may reject a true hypothesis too often even on the references they take (t on G-1 = %d degrees of freedom, F(q, %d-q) for q restrictions), and a joint Wald test of more than G-1 = %d restrictions is not computed (the covariance has rank at most G-1, G the clusters). Where the clusters are a few fixed units, a model with %s as a categorical predictor (one effect per cluster; not for a predictor constant within clusters) and observed or sandwich errors is the safer analysis; otherwise read the clustered p-values and intervals as too small%s",
+		a.clusterKey(), col, g, ds.N, fit.FewClusters, g-1, g, g-1, col, pooled)
 }
 
 // CheckDesign checks an outcome's fit input before any model is fitted
