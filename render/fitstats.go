@@ -88,12 +88,14 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	kind := fit.OddsRatioKind(res.Model)
 	d.h(4, "Odds ratios")
 	lo, hi := res.Categories[0], res.Categories[1]
-	d.p("exp(b) for a one-unit increase of each model column (what that unit is, in the column Change), with %s intervals exp(b ∓ z·se): the %s. At the first boundary (%s/%s) it multiplies the %s, and likewise at the other boundaries; above 1 the outcome moves towards higher categories. A parallel predictor has one value for every boundary; a constrained predictor has exp(φ_m g) at boundary m, its interval from the delta method on b_m = φ_m g.",
-		pct(level), kind, lo, hi, fit.OddsRatioMeaning(res.Model, lo, hi))
-	where := slices.ContainsFunc(tab.Rows, func(o runner.OddsRatioRow) bool { return o.HoldsAt != "" })
-	if res.DF != nil {
-		d.p("Pooled over the imputed sets, z is the quantile of t on the Barnard-Rubin degrees of freedom of b (of the smallest among b_m's parameters for a constrained predictor), as for the estimates.")
+	pooled := res.DF != nil
+	interval := "exp(b ∓ z·se)"
+	if pooled {
+		interval = "exp(b ∓ t·se), t the quantile of t on the degrees of freedom in column df (those of b in the estimates above; for a constrained predictor the smallest among b_m's parameters)"
 	}
+	d.p("exp(b) for a one-unit increase of each model column (what that unit is, in the column Change), with %s intervals %s: the %s. At the first boundary (%s/%s) it multiplies the %s, and likewise at the other boundaries; above 1 the outcome moves towards higher categories. A parallel predictor has one value for every boundary; a constrained predictor has exp(φ_m g) at boundary m, its interval from the delta method on b_m = φ_m g.",
+		pct(level), interval, kind, lo, hi, fit.OddsRatioMeaning(res.Model, lo, hi))
+	where := slices.ContainsFunc(tab.Rows, func(o runner.OddsRatioRow) bool { return o.HoldsAt != "" })
 	if res.RefDF > 0 && res.DF == nil {
 		d.p("With cluster-robust errors from G = %d clusters, z is the quantile of t on G-1 = %s degrees of freedom, as for the estimates.", res.Clusters, numfmt.Num(res.RefDF))
 	}
@@ -113,13 +115,20 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		if where {
 			row = append(row, o.HoldsAt)
 		}
-		rows = append(rows, append(append(row, at), numfmt.Ratios(o.Ratio, o.Low, o.High)...))
+		row = append(append(row, at), numfmt.Ratios(o.Ratio, o.Low, o.High)...)
+		if pooled {
+			row = append(row, dfCell(o.DF))
+		}
+		rows = append(rows, row)
 	}
 	head := []string{"Predictor", "Change"}
 	if where {
 		head = append(head, "Holds at")
 	}
 	head = append(head, "Boundary", capitalize(kind), pct(level)+" low", pct(level)+" high")
+	if pooled {
+		head = append(head, "df")
+	}
 	d.captioned(capitalize(kind)+"s of the chosen model").table(head, rows)
 }
 

@@ -1,6 +1,8 @@
 package render
 
 import (
+	"bytes"
+	"encoding/csv"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -141,5 +143,95 @@ func TestImputedReport(t *testing.T) {
 	me := strings.SplitN(string(files["table-marginal-effects-y.csv"]), "\n", 2)[0]
 	if !strings.HasSuffix(me, ",df,fmi,at") {
 		t.Errorf("marginal effects header: %s", me)
+	}
+}
+
+// csvByHeader reads a CSV output (encoding/csv) into one map per row, by
+// the names of its header line.
+func csvByHeader(t *testing.T, name string, b []byte) []map[string]string {
+	t.Helper()
+	recs, err := csv.NewReader(bytes.NewReader(b)).ReadAll()
+	if err != nil || len(recs) < 2 {
+		t.Fatalf("%s: %v (%d lines)", name, err, len(recs))
+	}
+	var out []map[string]string
+	for _, r := range recs[1:] {
+		m := map[string]string{}
+		for i, h := range recs[0] {
+			m[h] = r[i]
+		}
+		out = append(out, m)
+	}
+	return out
+}
+
+// TestImputedOddsRatiosDF: on imputed data the odds ratios of the chosen
+// model carry the degrees of freedom of their t (column df, in the report
+// and in table-odds-ratios), and each interval is exp(b -+ t_df se) with b,
+// se and df of the slope's row of the pooled estimates (table-estimates):
+// Rubin's rules' t on the Barnard-Rubin degrees of freedom (docs/models.md,
+// "Multiply imputed data"; the quantile from gonum's Student t, written out
+// here). The report no longer says in a sentence of its own which df the
+// intervals refer to.
+func TestImputedOddsRatiosDF(t *testing.T) {
+	files := runImputed(t)
+	md := string(files["report.md"])
+	hasAll(t, "report.md", md,
+		"| Predictor | Change | Boundary | Cumulative odds ratio | 95% low | 95% high | df |",
+		"with 95% intervals exp(b ∓ t·se), t the quantile of t on the degrees of freedom in column df")
+	if strings.Contains(md, "Pooled over the imputed sets, z is the quantile of t") {
+		t.Error("report.md still has the sentence on the odds ratios' degrees of freedom")
+	}
+	est := map[string]map[string]string{}
+	chosen := ""
+	for _, r := range csvByHeader(t, "table-estimates-y.csv", files["table-estimates-y.csv"]) {
+		if r["verdict"] == "chosen" {
+			est[r["parameter"]], chosen = r, r["model"]
+		}
+	}
+	num := func(s string) float64 {
+		t.Helper()
+		x, err := strconv.ParseFloat(s, 64)
+		if err != nil {
+			t.Fatalf("%q: %v", s, err)
+		}
+		return x
+	}
+	ors := csvByHeader(t, "table-odds-ratios-y.csv", files["table-odds-ratios-y.csv"])
+	if len(ors) != 2 {
+		t.Fatalf("%d odds ratios, want those of x1 and x2", len(ors))
+	}
+	for _, o := range ors {
+		e := est[o["predictor"]]
+		if o["model"] != chosen || e == nil || o["boundary"] != "0" {
+			t.Fatalf("odds ratio %v of no slope of the chosen model %s", o, chosen)
+		}
+		if o["df"] == "" || o["df"] != e["df"] || o["log_estimate"] != e["estimate"] || o["log_se"] != e["std_error"] {
+			t.Errorf("%s: odds ratio's log %s (se %s, df %s), the estimate %s (se %s, df %s)", o["predictor"], o["log_estimate"], o["log_se"], o["df"], e["estimate"], e["std_error"], e["df"])
+		}
+		b, se, df := num(e["estimate"]), num(e["std_error"]), num(e["df"])
+		q := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: df}.Quantile(0.975)
+		for _, c := range []struct {
+			col  string
+			want float64
+		}{{"low_95", math.Exp(b - q*se)}, {"high_95", math.Exp(b + q*se)}, {"ratio", math.Exp(b)}} {
+			if got := num(o[c.col]); math.Abs(got-c.want) > 1e-9*c.want {
+				t.Errorf("%s %s: %.12g, want exp(b -+ t_df se) = %.12g", o["predictor"], c.col, got, c.want)
+			}
+		}
+		// The interval of the estimate itself is b -+ t_df se too: the two
+		// tables refer to one t.
+		if lo := num(e["low_95"]); math.Abs(math.Exp(lo)-num(o["low_95"])) > 1e-9 {
+			t.Errorf("%s: exp of the estimate's low %g, the odds ratio's %s", o["predictor"], math.Exp(lo), o["low_95"])
+		}
+		cell := "| " + o["predictor"] + " | per unit of " + o["predictor"] + " | every boundary | "
+		i := strings.Index(md, cell)
+		if i < 0 {
+			t.Fatalf("no row %q in the report's odds ratios", cell)
+		}
+		row, _, _ := strings.Cut(md[i:], "\n")
+		if !strings.HasSuffix(row, " | "+dfCell(df)+" |") {
+			t.Errorf("report row %s: want df %s", row, dfCell(df))
+		}
 	}
 }

@@ -206,19 +206,32 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		res := or.Chosen.Result
 		if tab, err := runner.OddsRatios(res, or.ColumnReadings(), level); err == nil {
 			rows = nil
+			withDF := or.Imputed != nil || refStat(res) == "t" // as the estimates' df
 			for _, x := range tab.Rows {
 				b := ""
 				if x.Boundary > 0 {
 					b = res.Categories[x.Boundary-1] + "/" + res.Categories[x.Boundary]
 				}
-				rows = append(rows, []string{or.Chosen.ID, x.Predictor, x.Change, x.HoldsAt, strconv.Itoa(x.Boundary), b, x.Kind, csvNum(x.Log), csvNum(x.LogSE), csvNum(x.Ratio), csvNum(x.Low), csvNum(x.High)})
+				row := []string{or.Chosen.ID, x.Predictor, x.Change, x.HoldsAt, strconv.Itoa(x.Boundary), b, x.Kind, csvNum(x.Log), csvNum(x.LogSE), csvNum(x.Ratio), csvNum(x.Low), csvNum(x.High)}
+				if withDF {
+					row = append(row, csvNum(x.DF))
+				}
+				rows = append(rows, row)
 			}
 			about := "exp(b) of the chosen model with " + lv + "% intervals (boundary 0: the same at every boundary; change: what one unit of the column is; holds_at: where the terms the column's term interacts with have their columns at 0)"
+			head := []string{"model", "predictor", "change", "holds_at", "boundary", "categories", "kind", "log_estimate", "log_se", "ratio", "low_" + lv, "high_" + lv}
+			if withDF {
+				head = append(head, "df")
+				if or.Imputed != nil {
+					about += "; pooled over the imputed sets, the intervals exp(log_estimate -+ t log_se) with t the quantile of t on df, the Barnard-Rubin degrees of freedom of the column's slope in table-estimates" + pooledCSVDF(or) + " (for a constrained predictor the smallest among the parameters involved; df empty when infinite)"
+				} else {
+					about += "; the intervals exp(log_estimate -+ t log_se) with t the quantile of t on df = G-1 degrees of freedom, G the clusters of the cluster-robust covariance"
+				}
+			}
 			if len(tab.Omitted) > 0 {
 				about += "; the columns of " + strings.Join(tab.Omitted, ", ") + " (polynomial or spline bases, or terms sharing a data column with another term) have no odds ratio of their own and are left out"
 			}
-			add("odds-ratios", about,
-				[]string{"model", "predictor", "change", "holds_at", "boundary", "categories", "kind", "log_estimate", "log_se", "ratio", "low_" + lv, "high_" + lv}, rows)
+			add("odds-ratios", about, head, rows)
 		}
 	}
 

@@ -51,6 +51,10 @@ type OddsRatio struct {
 	Ratio     float64 `json:"ratio"`
 	Low       float64 `json:"low"`
 	High      float64 `json:"high"`
+	// DF is the degrees of freedom of the t its interval (and a p-value)
+	// refers to (referenceDF of the log's gradient: the smallest among
+	// the parameters it moves; +Inf: the normal), for the tables' column df.
+	DF float64 `json:"-"`
 }
 
 // OddsRatios returns exp(b_mk) with intervals at the given level for every
@@ -69,9 +73,10 @@ func (r *Result) OddsRatios(level float64) ([]OddsRatio, error) {
 	add := func(k, m int, g []float64) {
 		b := r.Effects[max(m-1, 0)][k]
 		se := math.Sqrt(quadForm(g, r.Cov))
-		z := r.ReferenceQuantile(0.5+level/2, g)
+		df := r.referenceDF(g)
+		z := TQuantile(0.5+level/2, df)
 		out = append(out, OddsRatio{Predictor: r.Predictors[k], Boundary: m, Kind: kind, Log: b, LogSE: se,
-			Ratio: math.Exp(b), Low: math.Exp(b - z*se), High: math.Exp(b + z*se)})
+			Ratio: math.Exp(b), Low: math.Exp(b - z*se), High: math.Exp(b + z*se), DF: df})
 	}
 	for k := range r.Model.Effects {
 		gs := r.slopeGradients(ly, k)
@@ -146,9 +151,6 @@ type CombinedOddsRatio struct {
 	OddsRatio
 	Z float64 `json:"z"`
 	P float64 `json:"p"`
-	// DF is the degrees of freedom of the t its interval and p-value
-	// refer to (referenceDF; +Inf: the normal), for the tables' column df.
-	DF float64 `json:"-"`
 }
 
 // OddsRatioOf is the odds ratio exp(sum_k d_k b_mk) of a logit fit for the
@@ -199,7 +201,7 @@ func (r *Result) OddsRatioOf(name string, d []float64, level float64) ([]Combine
 		df := r.referenceDF(g)
 		z := TQuantile(0.5+level/2, df)
 		o := CombinedOddsRatio{OddsRatio: OddsRatio{Predictor: name, Boundary: m + 1, Kind: kind, Log: b, LogSE: se,
-			Ratio: math.Exp(b), Low: math.Exp(b - z*se), High: math.Exp(b + z*se)}, P: 1, DF: df}
+			Ratio: math.Exp(b), Low: math.Exp(b - z*se), High: math.Exp(b + z*se), DF: df}, P: 1}
 		if bounds == 1 {
 			o.Boundary = 0
 		}
