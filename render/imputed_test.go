@@ -3,6 +3,7 @@ package render
 import (
 	"bytes"
 	"encoding/csv"
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"os"
@@ -140,9 +141,16 @@ func TestImputedReport(t *testing.T) {
 			t.Errorf("pooled prediction interval [%g, %g], want [%g, %g] (p %g, quantile %g, se %g): %s", lo, hi, wlo, whi, v, q, se, line)
 		}
 	}
-	me := strings.SplitN(string(files["table-marginal-effects-y.csv"]), "\n", 2)[0]
-	if !strings.HasSuffix(me, ",df,fmi,at") {
-		t.Errorf("marginal effects header: %s", me)
+	me := strings.Split(strings.TrimSpace(string(files["table-marginal-effects-y.csv"])), "\n")
+	if !strings.HasSuffix(me[0], ",df,fmi,at,at_outside") {
+		t.Errorf("marginal effects header: %s", me[0])
+	}
+	// at_outside: empty for averages (no point), false at the means
+	// (inside by construction; the profile's rows are checked by W23).
+	for _, l := range me[1:] {
+		if strings.HasPrefix(l, "average,") && !strings.HasSuffix(l, ",,") || strings.HasPrefix(l, "means,") && !strings.HasSuffix(l, ",false") {
+			t.Errorf("marginal effects row, column at_outside: %s", l)
+		}
 	}
 }
 
@@ -233,5 +241,55 @@ func TestImputedOddsRatiosDF(t *testing.T) {
 		if !strings.HasSuffix(row, " | "+dfCell(df)+" |") {
 			t.Errorf("report row %s: want df %s", row, dfCell(df))
 		}
+	}
+}
+
+// TestClusteredOddsRatiosDF: on one data set under a cluster-robust
+// covariance table-odds-ratios carries df = G-1, as table-estimates does,
+// and each interval is exp(b -+ t_{G-1} se) of the slope's estimate (the
+// quantile from gonum's Student t). Invented data: 200 rows in 20 sites.
+func TestClusteredOddsRatiosDF(t *testing.T) {
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(8, 3))
+	var b strings.Builder
+	b.WriteString("y,x1,x2,site\n")
+	for i := range 200 {
+		y, x1, x2 := testsurvey.Report.Row(rng)
+		fmt.Fprintf(&b, "%d,%.5f,%.5f,s%d\n", y, x1, x2, i%20)
+	}
+	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
+	src := `version: 1
+title: clustered
+data: {file: d.csv, cluster: site}
+covariance: clustered
+outcomes: [{column: y}]
+predictors: [x1, x2]
+models: {approaches: [cumulative], effects: [parallel]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: bic}
+`
+	files := renderSource(t, dir, src, 2)
+	est := map[string]map[string]string{}
+	for _, r := range csvByHeader(t, "table-estimates-y.csv", files["table-estimates-y.csv"]) {
+		est[r["parameter"]] = r
+	}
+	ors := csvByHeader(t, "table-odds-ratios-y.csv", files["table-odds-ratios-y.csv"])
+	q := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: 19}.Quantile(0.975)
+	for _, o := range ors {
+		e := est[o["predictor"]]
+		if e == nil || o["df"] != "19" || e["df"] != "19" {
+			t.Fatalf("odds ratio %v, estimate %v: want df 19 in both", o, e)
+		}
+		bv, _ := strconv.ParseFloat(e["estimate"], 64)
+		se, _ := strconv.ParseFloat(e["std_error"], 64)
+		lo, _ := strconv.ParseFloat(o["low_95"], 64)
+		hi, _ := strconv.ParseFloat(o["high_95"], 64)
+		if wlo, whi := math.Exp(bv-q*se), math.Exp(bv+q*se); math.Abs(lo-wlo) > 1e-9*wlo || math.Abs(hi-whi) > 1e-9*whi {
+			t.Errorf("%s: interval [%g, %g], want [%g, %g]", o["predictor"], lo, hi, wlo, whi)
+		}
+	}
+	if len(ors) != 2 {
+		t.Errorf("%d odds ratios, want 2", len(ors))
 	}
 }

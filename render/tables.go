@@ -343,15 +343,16 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 						row[len(row)-1] = csvNum(pp.FMI)
 					}
 				}
-				at := ""
+				at, outside := "", ""
 				if set.Point != nil {
 					at = pointList(or, set.Point)
+					outside = strconv.FormatBool(set.Kind == "profile" && len(or.ProfileOutside) > 0)
 				}
-				rows = append(rows, append(row, at))
+				rows = append(rows, append(row, at, outside))
 			}
 		}
-		head = append(head, "at")
-		about += "; at: the point of effects at the means or at the plan's profile (every column the predictors read)"
+		head = append(head, "at", "at_outside")
+		about += "; at: the point of effects at the means or at the plan's profile (every column the predictors read); at_outside: true where that point is the plan's profile and it lies outside the population the model was fitted to (why: decisions.json's profile_outside and the report; the means are inside by construction)"
 		add("marginal-effects", about, head, rows)
 	}
 	if len(or.LevelPairs) > 0 {

@@ -370,6 +370,9 @@ func termItems(dir string) []badInput {
 				if w := `"profile_outside": [`; err != nil || !strings.Contains(string(dec), w) {
 					t.Errorf("decisions.json (%v): want %s", err, w)
 				}
+				// The CSV of the marginal effects flags the profile's rows
+				// too (column at_outside).
+				profileFlag(t, filepath.Join(dir, "W23-out", "table-marginal-effects-y.csv"), "true")
 			}},
 		{id: "T26", name: "pairs of levels at a profile that gives no level of another categorical predictor (warned, held at its reference level)", args: []string{"run"}, setup: writeCellsData,
 			plan: termsEdit("cat.csv", "cells.csv", "south]}\n", "south]}\n  grade: {levels: [lo, hi]}\n", "[site, x]", "[site, grade, x]", "rules:", "inference: {marginal_effects: [profile], profile: {x: 3}, level_pairs: {predictors: [site]}}\nrules:"), code: 0,
@@ -400,9 +403,27 @@ func termItems(dir string) []badInput {
 				if err != nil || !strings.Contains(string(b), want) || !strings.Contains(string(b), "(categorical ones at their reference level): x = 2.") {
 					t.Errorf("report.md does not say the profile's level of site is not used (%v); want %q", err, want)
 				}
+				profileFlag(t, filepath.Join(dir, "T27-out", "table-marginal-effects-y.csv"), "false")
 			}},
 		{id: "T14", name: "a subset that leaves out a declared level", args: []string{"check", "--no-data"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: site, none_of: [south]}\npredictors:"), code: 1,
 			want: []string{`T14.yaml:7:5: subset[0]: leaves out the rows of level "south" of site, which categorical.site declares: no row used has it, so its column cannot be estimated; remove the level from categorical.site.levels (rows outside the subset may keep it) or set categorical.site.unobserved: drop` + "\n"}},
+	}
+}
+
+// profileFlag checks that every row of a marginal-effects CSV (a run whose
+// only effects are at the profile) has column at_outside, its last, set to
+// want: "true" where the profile lies outside the population fitted.
+func profileFlag(t *testing.T, path, want string) {
+	t.Helper()
+	me, err := os.ReadFile(path)
+	lines := strings.Split(strings.TrimSpace(string(me)), "\n")
+	if err != nil || len(lines) < 2 || !strings.HasSuffix(lines[0], ",at,at_outside") {
+		t.Fatalf("%s (%v): header %q", path, err, lines[0])
+	}
+	for _, l := range lines[1:] {
+		if !strings.HasPrefix(l, "profile,") || !strings.HasSuffix(l, ","+want) {
+			t.Errorf("%s: a row at the profile whose at_outside is not %s: %s", path, want, l)
+		}
 	}
 }
