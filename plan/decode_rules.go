@@ -3,6 +3,7 @@ package plan
 import (
 	"fmt"
 	"slices"
+	"strconv"
 	"strings"
 
 	"gopkg.in/yaml.v3"
@@ -117,15 +118,8 @@ func (d *decoder) decodeRule(n *yaml.Node, path string) Rule {
 		if f, ok := m.bounded(ruleKey(kind, "max_condition")); ok {
 			r.MaxCondition = f
 		}
-		if mv := m.get("min_starts_agreeing"); mv != nil {
-			const want = "a whole number from 1 to 1000"
-			if n, ok := d.integerWant(mv, m.at("min_starts_agreeing"), want); ok {
-				if n < 1 || n > 1000 {
-					d.errorf(deref(mv), m.at("min_starts_agreeing"), "%d is out of range (want %s)", n, want)
-				} else {
-					r.MinStartsAgreeing = int(n)
-				}
-			}
+		if n, ok := m.wholeInRange(ruleKey(kind, "min_starts_agreeing")); ok {
+			r.MinStartsAgreeing = int(n)
 		}
 		if m.get("max_condition") == nil && m.get("min_starts_agreeing") == nil {
 			d.errorf(deref(v), p, "give max_condition (largest condition number of the information), min_starts_agreeing (starts of a constrained search that reach the best value) or both")
@@ -198,6 +192,27 @@ func (m *mapping) bounded(x *Key) (float64, bool) {
 		return 0, false
 	}
 	return f, true
+}
+
+// wholeInRange reads the whole number of key x (a KindInteger with Min
+// and Max) within the range its description gives, as bounded does for a
+// number: the help, the schema and the decoder hold one range.
+func (m *mapping) wholeInRange(x *Key) (int64, bool) {
+	mv := m.get(x.Name)
+	if mv == nil {
+		return 0, false
+	}
+	num := func(f float64) string { return strconv.FormatFloat(f, 'f', -1, 64) }
+	want := fmt.Sprintf("a whole number from %s to %s", num(*x.Min), num(*x.Max))
+	n, ok := m.d.integerWant(mv, m.at(x.Name), want)
+	if !ok {
+		return 0, false
+	}
+	if float64(n) < *x.Min || float64(n) > *x.Max {
+		m.d.errorf(deref(mv), m.at(x.Name), "%d is out of range (want %s)", n, want)
+		return 0, false
+	}
+	return n, true
 }
 
 // gridCategoricalWant is what a grid takes for a categorical column.

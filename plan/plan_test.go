@@ -394,6 +394,8 @@ func TestBadPlans(t *testing.T) {
 			[]string{`rules[0].reject_if_unstable.min_starts_agreeing: applies only to constrained and stereotype models`}},
 		{"unstable starts range", "  - choose: {by: aic}\n", "  - reject_if_unstable: {min_starts_agreeing: 0}\n  - choose: {by: aic}\n",
 			[]string{`rules[0].reject_if_unstable.min_starts_agreeing: 0 is out of range (want a whole number from 1 to 1000)`}},
+		{"unstable starts above range", "  - choose: {by: aic}\n", "  - reject_if_unstable: {min_starts_agreeing: 1001}\n  - choose: {by: aic}\n",
+			[]string{`rules[0].reject_if_unstable.min_starts_agreeing: 1001 is out of range (want a whole number from 1 to 1000)`}},
 		{"unknown multiplicity", "", "inference: {hypotheses: [\"a = 0\"], multiplicity: bonferroni}\n",
 			[]string{`inference.multiplicity: unknown multiplicity correction "bonferroni" (want none, holm or benjamini_hochberg)`}},
 		{"multiplicity without hypotheses", "", "inference: {multiplicity: holm}\n",

@@ -106,8 +106,10 @@ func TestKeyHelpListsEveryKey(t *testing.T) {
 // Every number option of a rule with a lower bound is refused at the
 // bound by the decoder exactly when the schema refuses it (exclusiveMinimum
 // for a bound the value must exceed, minimum otherwise) and when `ordplan
-// help plan` says "more than", and both take a value above the bound: the
-// bound is written once, in Spec (Key.Min, Key.MinOpen).
+// help plan` says "more than", and both take a value above the bound; a
+// whole-number option with a range is refused just outside it by both and
+// taken at its ends, and the help gives the range: the bound is written
+// once, in Spec (Key.Min, Key.MinOpen, Key.Max).
 func TestRuleBoundsAsTheSchema(t *testing.T) {
 	s := compiledSchema(t)
 	src, err := os.ReadFile(filepath.Join("..", "plans", "example.yaml"))
@@ -122,33 +124,41 @@ func TestRuleBoundsAsTheSchema(t *testing.T) {
 	tried := 0
 	for _, rule := range Spec.find("rules").Variants {
 		for _, x := range rule.Keys {
-			if x.Kind != KindNumber || x.Min == nil {
+			whole := x.Kind == KindInteger && x.Max != nil
+			if x.Kind != KindNumber && !whole || x.Min == nil {
 				continue
 			}
 			tried++
 			path := "rules[2]." + rule.Name + "." + x.Name + ":"
 			where := "/rules/2/" + rule.Name + "/" + x.Name
-			for _, v := range []float64{*x.Min, *x.Min + 1} {
+			values := []float64{*x.Min, *x.Min + 1}
+			if whole {
+				values = []float64{*x.Min - 1, *x.Min, *x.Max, *x.Max + 1}
+			}
+			for _, v := range values {
 				bad := strings.Replace(string(src), line, fmt.Sprintf("  - %s: {%s: %v}", rule.Name, x.Name, v), 1)
 				_, perr := Parse([]byte(bad), "bounds.yaml")
 				decRefused := perr != nil && strings.Contains(perr.Error(), path)
 				serr := s.Validate(asJSON(t, []byte(bad)))
 				schemaRefused := serr != nil && strings.Contains(serr.Error(), where)
-				want := v == *x.Min && x.MinOpen
+				want := v == *x.Min && x.MinOpen || v < *x.Min || x.Max != nil && v > *x.Max
 				if decRefused != want || schemaRefused != want {
 					t.Errorf("%s = %v: refused by the decoder %v (%v), by the schema %v (%v); want %v", where, v, decRefused, perr, schemaRefused, serr, want)
 				}
 			}
-			word := "at least"
-			if x.MinOpen {
-				word = "more than"
+			text := fmt.Sprintf("number, at least %g", *x.Min)
+			switch {
+			case whole:
+				text = fmt.Sprintf("whole number, %g to %g", *x.Min, *x.Max)
+			case x.MinOpen:
+				text = fmt.Sprintf("number, more than %g", *x.Min)
 			}
-			if !strings.Contains(help, fmt.Sprintf("number, %s %g", word, *x.Min)) {
-				t.Errorf("%s: the help does not say %q %g", where, word, *x.Min)
+			if !strings.Contains(help, text) {
+				t.Errorf("%s: the help does not say %q", where, text)
 			}
 		}
 	}
-	if tried < 4 { // margin (choose, prefer_simpler), per_parameter, smallest_category, max_condition
+	if tried < 6 { // margin (choose, prefer_simpler), per_parameter, smallest_category, max_condition, min_starts_agreeing
 		t.Fatalf("only %d bounded rule options", tried)
 	}
 }
