@@ -130,13 +130,18 @@ inference: {marginal_effects: [average, means]}
 	if err != nil {
 		t.Fatal(err)
 	}
-	if h := recs[0]; h[len(h)-1] != "at" {
-		t.Errorf("marginal effects header %q", h)
+	// at_outside, after at: false at the means, empty for the averages.
+	h := recs[0]
+	if len(h) < 2 || h[len(h)-2] != "at" || h[len(h)-1] != "at_outside" {
+		t.Fatalf("marginal effects header %q", h)
 	}
 	for _, r := range recs[1:] {
-		at := r[len(r)-1]
+		at, outside := r[len(r)-2], r[len(r)-1]
 		if (r[0] == "means") != strings.HasPrefix(at, "pilot = 0.") || r[0] == "means" && !strings.Contains(at, ", age = ") {
 			t.Errorf("%s row at %q", r[0], at)
+		}
+		if want := map[bool]string{true: "false", false: ""}[r[0] == "means"]; outside != want {
+			t.Errorf("%s row at_outside %q, want %q", r[0], outside, want)
 		}
 	}
 	md, orCSV := string(files["report.md"]), string(files["table-odds-ratios-safety.csv"])
