@@ -506,11 +506,11 @@ func partialSetWords(r *runner.Result, or *runner.OutcomeResult, constrained boo
 	case len(or.FreeSets[0].Predictors) == 0:
 		return " for no predictor (the plan's partial set holds none of the terms, so none was fitted)"
 	case !constrained:
-		return " for " + words.AndList(mdTexts(or.FreeSets[0].Predictors))
+		return " for " + words.AndList(words.Each(or.FreeSets[0].Predictors, mdText))
 	}
 	groups := runner.ConstrainedGroups(r.Analysis.Models, or.Terms, or.FreeSets[0].Predictors)
 	if len(groups) == 1 {
-		w := " for " + words.AndList(mdTexts(groups[0].Predictors))
+		w := " for " + words.AndList(words.Each(groups[0].Predictors, mdText))
 		if groups[0].Name != "" {
 			w += " (group " + mdText(groups[0].Name) + ")"
 		}
@@ -518,7 +518,7 @@ func partialSetWords(r *runner.Result, or *runner.OutcomeResult, constrained boo
 	}
 	var parts []string
 	for _, g := range groups {
-		parts = append(parts, mdText(g.Name)+": "+words.AndList(mdTexts(g.Predictors)))
+		parts = append(parts, mdText(g.Name)+": "+words.AndList(words.Each(g.Predictors, mdText)))
 	}
 	return ", one for each group of predictors (" + strings.Join(parts, "; ") + ")"
 }
@@ -543,7 +543,7 @@ func selectedWords(or *runner.OutcomeResult, m plan.Models) string {
 		case len(s.Result.FinalNonparallel) == 0:
 			left = append(left, fmt.Sprintf("no predictor free in the %s models (so %s)", s.Approach, none))
 		default:
-			left = append(left, fmt.Sprintf("%s free in the %s models", words.AndList(mdTexts(s.Result.FinalNonparallel)), s.Approach))
+			left = append(left, fmt.Sprintf("%s free in the %s models", words.AndList(words.Each(s.Result.FinalNonparallel, mdText)), s.Approach))
 		}
 	}
 	var out []string
@@ -563,15 +563,6 @@ func firstLink(links []fit.Link) string {
 		return " (the first listed), its partial sets serving every link"
 	}
 	return ""
-}
-
-// mdTexts is mdText of each name.
-func mdTexts(names []string) []string {
-	out := make([]string, len(names))
-	for i, n := range names {
-		out[i] = mdText(n)
-	}
-	return out
 }
 
 func plural(n int) string {

@@ -83,6 +83,16 @@ func AndList(words []string) string { return list(words, " and ") }
 // OrList renders ["a", "b", "c"] as "a, b or c".
 func OrList(words []string) string { return list(words, " or ") }
 
+// Each writes every one of xs by text, in order: the words of a list
+// (words.AndList(words.Each(codes, num))).
+func Each[T any](xs []T, text func(T) string) []string {
+	out := make([]string, len(xs))
+	for i, x := range xs {
+		out[i] = text(x)
+	}
+	return out
+}
+
 // list joins words with ", " and the last pair with last.
 func list(words []string, last string) string {
 	switch len(words) {

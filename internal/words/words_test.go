@@ -30,6 +30,9 @@ func TestSetParsesPrintsAndLists(t *testing.T) {
 	if OrList([]string{"a", "b", "c"}) != "a, b or c" || OrList([]string{"a"}) != "a" {
 		t.Error("OrList")
 	}
+	if got := AndList(Each([]int{3, 1, 2}, func(i int) string { return colorWords.Name(color(i % 2)) })); got != "dark_green, dark_green and red" {
+		t.Errorf("Each: %q", got)
+	}
 }
 
 func TestNearestByEditDistance(t *testing.T) {

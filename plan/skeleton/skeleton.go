@@ -285,13 +285,13 @@ func Write(in Input) ([]byte, error) {
 				var codes, why []string
 				if lowCodes(c) {
 					lo = c.MinOther
-					low := numbers(c.Codes)
+					low := words.Each(c.Codes, num)
 					codes = append(codes, low...)
 					why = append(why, fmt.Sprintf("%s, %s below values that are all 0 or more", words.AndList(low), codeLike(len(low))))
 				}
 				if topCodes(c) {
 					hi = c.MaxOther
-					top := numbers(c.TopCodes)
+					top := words.Each(c.TopCodes, num)
 					codes = append(codes, top...)
 					why = append(why, fmt.Sprintf("%s, %s far above the other values", words.AndList(top), codeLike(len(top))))
 				}
@@ -349,15 +349,6 @@ func lowCodes(c data.Profile) bool {
 // (99, 999, ...) far above its other values (data.Profile.TopCodes).
 func topCodes(c data.Profile) bool {
 	return len(c.TopCodes) > 0 && !math.IsInf(c.MaxOther, -1) && c.MaxOther >= c.MinOther
-}
-
-// numbers writes numbers as a plan does.
-func numbers(xs []float64) []string {
-	out := make([]string, len(xs))
-	for i, x := range xs {
-		out[i] = num(x)
-	}
-	return out
 }
 
 // codeLike says that n codes look like missing-value codes.
