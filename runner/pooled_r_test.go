@@ -21,10 +21,7 @@ import (
 // are the two-category cumulative logit model (glm's, checked in
 // runner/fit), its predictions pooled by poolPredictions.
 func TestPooledPredictionsAgainstMice(t *testing.T) {
-	rscript.Require(t)
-	if !rscript.HasPackage(t, "mice") {
-		t.Skip("the R package mice is not installed (Debian: apt-get install r-cran-mice): the check against it is skipped")
-	}
+	rscript.RequirePackages(t, "mice")
 	const m, n = 5, 150
 	dir := t.TempDir()
 	rng := rand.New(rand.NewPCG(41, 3))
@@ -90,10 +87,7 @@ func TestPooledPredictionsAgainstMice(t *testing.T) {
 // and intervals (ParamInference) and its odds ratios must refer to the
 // same t, not to the normal.
 func TestPooledEstimatesAgainstMice(t *testing.T) {
-	rscript.Require(t)
-	if !rscript.HasPackage(t, "mice") {
-		t.Skip("the R package mice is not installed (Debian: apt-get install r-cran-mice): the check against it is skipped")
-	}
+	rscript.RequirePackages(t, "mice")
 	const m, n = 5, 60
 	dir := t.TempDir()
 	rng := rand.New(rand.NewPCG(97, 5))

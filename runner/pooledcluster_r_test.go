@@ -28,10 +28,7 @@ import (
 // effect, x missing in about a quarter of the rows and drawn at random
 // in each imputed set (any completed sets serve to check the pooling).
 func TestPooledClusteredAgainstMitml(t *testing.T) {
-	rscript.Require(t)
-	if !rscript.HasPackage(t, "mitml") {
-		t.Skip("the R package mitml is not installed (Debian: apt-get install r-cran-mitml): the check against it is skipped")
-	}
+	rscript.RequirePackages(t, "mitml")
 	const m, sites = 5, 12
 	dir := clusteredImputedData(t, m, sites)
 	src := strings.Replace(xgPlan("{file: orig.csv, cluster: site, imputed: {file: stacked.csv, column: imp}}", "parallel", "aic"),

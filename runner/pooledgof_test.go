@@ -168,10 +168,7 @@ func TestPooledGOFAgainstMitmlFrozen(t *testing.T) {
 // TestPooledGOFAgainstMitml runs testdata/gofd2.R with the mitml installed
 // here: D2 agrees with it, and it prints what the frozen file holds.
 func TestPooledGOFAgainstMitml(t *testing.T) {
-	rscript.Require(t)
-	if !rscript.HasPackage(t, "mitml") {
-		t.Skip("the R package mitml is not installed (Debian: apt-get install r-cran-mitml): the check against it is skipped")
-	}
+	rscript.RequirePackages(t, "mitml")
 	v := rscript.Run(t, t.TempDir(), gofD2Script)
 	worst := checkGOFD2(t, v)
 	frozen := rscript.Frozen(t, gofD2Frozen)

@@ -125,7 +125,8 @@ type slopeRow struct {
 // (one row per stage reached, an intercept per stage); R writes out
 // dP(y = k)/dage through the raw cubic and differentiates it in glm's
 // coefficients with steps scaled to each column
-// (testdata/rcheck/slopesstage.R). The adjacent-category nonparallel logit
+// (testdata/rcheck/slopesstage.R, after slopesdelta.R, which the adjacent
+// check shares). The adjacent-category nonparallel logit
 // model is the baseline-category logit, which nnet::multinom fits (refined
 // by Newton steps in R); R writes out dP(y = k)/ddose and dP(y = k)/dage
 // through log(dose + 1), dose^2 and their products with centred age, and
@@ -156,7 +157,7 @@ func TestPerUnitEffectsAgainstGlm(t *testing.T) {
 	}
 	p = writePlan(t, slopesStagePlan, map[string]string{"srh.csv": slopesData(t, "srh.csv")})
 	or = runPlan(t, p, 0).Outcomes[0]
-	vals = rscript.Run(t, filepath.Dir(p.Path), "testdata/rcheck/slopesstage.R")
+	vals = rscript.Run(t, filepath.Dir(p.Path), "testdata/rcheck/slopesdelta.R", "testdata/rcheck/slopesstage.R")
 	got := perUnit(t, or, "age")
 	for _, kind := range []string{"average", "means", "profile"} {
 		r := vals.Get(t, kind+"_age")
@@ -172,7 +173,7 @@ func TestPerUnitEffectsAgainstGlm(t *testing.T) {
 	if nnet := rscript.HasPackage(t, "nnet"); nnet {
 		p = writePlan(t, slopesAdjacentPlan, map[string]string{"pain.csv": slopesData(t, "pain.csv")})
 		or = runPlan(t, p, 0).Outcomes[0]
-		vals = rscript.Run(t, filepath.Dir(p.Path), "testdata/rcheck/slopesadjacent.R")
+		vals = rscript.Run(t, filepath.Dir(p.Path), "testdata/rcheck/slopesdelta.R", "testdata/rcheck/slopesadjacent.R")
 		for _, v := range []string{"dose", "age"} {
 			got := perUnit(t, or, v)
 			for _, kind := range []string{"average", "means", "profile"} {

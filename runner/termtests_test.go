@@ -304,10 +304,7 @@ rules:
 // rows, each imputed set drawing a missing g at random from the three
 // levels (any completed sets serve to check the pooling).
 func TestPooledTermTestsAgainstMitml(t *testing.T) {
-	rscript.Require(t)
-	if !rscript.HasPackage(t, "mitml") {
-		t.Skip("the R package mitml is not installed (Debian: apt-get install r-cran-mitml): the check against it is skipped")
-	}
+	rscript.RequirePackages(t, "mitml")
 	const m, n = 5, 200
 	dir := t.TempDir()
 	rng := rand.New(rand.NewPCG(5, 55))

@@ -35,9 +35,7 @@ func TestInitOffersClusterIDs(t *testing.T) {
 	if strings.Contains(string(text), "  clinic:") {
 		t.Errorf("clinic is described in the dictionary as a predictor:\n%s", text)
 	}
-	if _, err := plan.Load(planPath); err != nil {
-		t.Fatalf("not a valid plan: %v\n%s", err, text)
-	}
+	loadSkeleton(t, planPath)
 }
 
 // TestInitKeepsNumericPredictors: whole-number measurements with many
@@ -78,6 +76,27 @@ func initSkeleton(t *testing.T, dir, csv, outcome string) (string, string) {
 		t.Fatal(err)
 	}
 	return planPath, string(text)
+}
+
+// loadSkeleton loads the plan init wrote at path: the test stops, showing
+// the plan, when it is not a valid plan.
+func loadSkeleton(t *testing.T, path string) *plan.Plan {
+	t.Helper()
+	p, err := plan.Load(path)
+	if err != nil {
+		text, _ := os.ReadFile(path)
+		t.Fatalf("not a valid plan: %v\n%s", err, text)
+	}
+	return p
+}
+
+// checksInside runs ordplan check on the plan init wrote at path: exit 0,
+// and no value of the data outside the dictionary init wrote.
+func checksInside(t *testing.T, path string) {
+	t.Helper()
+	if out, errs, code := runCLI("check", path); code != 0 || strings.Contains(out+errs, "outside") {
+		t.Errorf("check: exit %d\n%s%s", code, out, errs)
+	}
 }
 
 // hasEach reports each of wants that text lacks.

@@ -15,6 +15,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"ordplan/internal/words"
 )
 
 // timeout bounds one run of R.
@@ -38,6 +40,28 @@ func HasPackage(t testing.TB, pkg string) bool {
 	cmd := exec.Command(p, "--vanilla", "-e", fmt.Sprintf("cat(requireNamespace(%q, quietly = TRUE))", pkg))
 	out, err := cmd.Output()
 	return err == nil && strings.TrimSpace(string(out)) == "TRUE"
+}
+
+// RequirePackages skips the test with one line when Rscript is not on
+// PATH (Require) or one of the R packages pkgs cannot be loaded, naming
+// those and the Debian packages that bring them.
+func RequirePackages(t testing.TB, pkgs ...string) {
+	t.Helper()
+	Require(t)
+	var missing, debian []string
+	for _, p := range pkgs {
+		if !HasPackage(t, p) {
+			missing = append(missing, p)
+			debian = append(debian, "r-cran-"+strings.ToLower(p))
+		}
+	}
+	switch len(missing) {
+	case 0:
+	case 1:
+		t.Skipf("the R package %s is not installed (Debian: apt-get install %s): the check against it is skipped", missing[0], debian[0])
+	default:
+		t.Skipf("the R packages %s are not installed (Debian: apt-get install %s): the check against them is skipped", words.AndList(missing), strings.Join(debian, " "))
+	}
 }
 
 // Values are the value lists a script printed, by name.

@@ -46,3 +46,17 @@ func TestCSVRoundTrip(t *testing.T) {
 		}
 	}
 }
+
+// RequirePackages skips a test that needs an R package R cannot load
+// (without Rscript, Require skips it first).
+func TestRequirePackagesSkips(t *testing.T) {
+	var skipped bool
+	t.Run("missing", func(t *testing.T) {
+		defer func() { skipped = t.Skipped() }()
+		RequirePackages(t, "stats", "ordplanNoSuchPackage")
+		t.Error("went on without the package")
+	})
+	if !skipped {
+		t.Error("not skipped")
+	}
+}

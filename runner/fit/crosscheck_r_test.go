@@ -783,9 +783,7 @@ func fourCategorySets(t *testing.T, script string) (rscript.Values, []namedData)
 // Data: R's esoph (datasets package, ?esoph: Breslow & Day 1980) with the
 // alcohol group as the outcome, as in testRStage; and simFourCategories.
 func testRMultinomial(t *testing.T) {
-	if !rscript.HasPackage(t, "nnet") {
-		t.Skip("R package nnet is not installed: the multinomial cross-check is skipped (Debian: r-cran-nnet)")
-	}
+	rscript.RequirePackages(t, "nnet")
 	a := newAgreement(t)
 	defer a.report()
 	vals, sets := fourCategorySets(t, "multinom.R")

@@ -181,10 +181,7 @@ func TestSeparationEvidenceSparseLevel(t *testing.T) {
 // whose stage log-likelihood R's glm reaches too. Skipped without R or lpSolve (Debian:
 // r-cran-lpsolve).
 func TestRecessionAgainstLPSolve(t *testing.T) {
-	rscript.Require(t)
-	if !rscript.HasPackage(t, "lpSolve") {
-		t.Skip("the R package lpSolve is not installed (Debian: apt-get install r-cran-lpsolve): the check against it is skipped")
-	}
+	rscript.RequirePackages(t, "lpSolve")
 	stage := tinyData(t, 3, [][4]float64{{2, -1.24, 1}, {2, -1.36, 0}, {2, -0.66, 1}, {3, 1.38, 0}, {3, -0.33, 1}, {3, 0.01, 0}, {3, 0.81, 0},
 		{2, -0.1, 1}, {3, 1.22, 1}, {2, 0.05, 0}, {1, -0.02, 0}, {1, -1.28, 1}, {2, -1.16, 1}, {3, 1.64, 1}},
 		"vwvvvuuuwuuuvv", []float64{3, 3, 3, 3, 3, 2, 1, 2, 1, 3, 1, 2, 2, 1})

@@ -147,10 +147,7 @@ func TestRubinAgainstMiceFrozen(t *testing.T) {
 // versions are those of the frozen values, the imputed sets must be the
 // same too.
 func TestAgainstMiceNhanes(t *testing.T) {
-	rscript.Require(t)
-	if !rscript.HasPackage(t, "mice") || !rscript.HasPackage(t, "mitml") {
-		t.Skip("the R packages mice and mitml are not installed (Debian: apt-get install r-cran-mice r-cran-mitml): the check against them is skipped")
-	}
+	rscript.RequirePackages(t, "mice", "mitml")
 	v := rscript.Run(t, t.TempDir(), nhanesScript)
 	worst := checkNhanes(t, v)
 	frozen := rscript.Frozen(t, nhanesFrozen)

@@ -117,10 +117,7 @@ func TestPoolErrors(t *testing.T) {
 // program's fits are the two-category cumulative logit model, whose slopes
 // are glm's with the sign reversed (checked against glm in runner/fit).
 func TestAgainstMice(t *testing.T) {
-	rscript.Require(t)
-	if !rscript.HasPackage(t, "mice") {
-		t.Skip("the R package mice is not installed (Debian: apt-get install r-cran-mice): the check against it is skipped")
-	}
+	rscript.RequirePackages(t, "mice")
 	const m, n = 5, 120
 	dir := t.TempDir()
 	rng := rand.New(rand.NewPCG(20, 1))

@@ -7,15 +7,13 @@
 # nnet::multinom and refined by Newton steps on the multinomial
 # log-likelihood with its score and information written out; V is the
 # inverse information. dP(y = k)/dv = P_k (e_k - sum_j P_j e_j) with
-# e_k = dx/dv' c_k; its gradient in the coefficients is taken by central
-# differences refined by Richardson's extrapolation over steps h and h/2,
-# each coefficient's step scaled to its column (1e-4 / max |column|); the
-# delta-method standard error is sqrt(G V G'). Averaged over the rows, at
+# e_k = dx/dv' c_k; its delta-method standard error is delta's
+# (slopesdelta.R, run first), each coefficient's step scaled to its column
+# (1e-4 / max |column|). Averaged over the rows, at
 # the means (dose, age and sex at their means, drug gamma) and at the
 # profile dose 20, age 30, drug beta, sex 0. Prints "kind_variable e_1 ..
 # e_4 se_1 .. se_4" with 17 significant digits.
 library(nnet)
-out <- function(name, v) cat(name, sprintf("%.17g", as.numeric(v)), "\n")
 d0 <- read.csv("pain.csv")
 d <- d0[d0$age >= 18, ]
 lev <- c("none", "slight", "moderate", "complete")
@@ -63,20 +61,7 @@ slope <- function(v, dose, age, drug, sex) function(t) {
   E <- cbind(0, dX(v, dose, age) %*% Bt)
   colMeans(P * (E - rowSums(P * E)))
 }
-grad <- function(f) sapply(seq_along(th), function(k) {
-  d1 <- function(h) {
-    e <- rep(0, length(th))
-    e[k] <- h
-    (f(th + e) - f(th - e)) / (2 * h)
-  }
-  a <- d1(step[k])
-  b <- d1(step[k] / 2)
-  b + (b - a) / 3
-})
-effect <- function(f) {
-  G <- grad(f)
-  c(f(th), sqrt(diag(G %*% V %*% t(G))))
-}
+effect <- function(f) delta(f, th, V, step)
 for (v in c("dose", "age")) {
   out(paste0("average_", v), effect(slope(v, d$dose, d$age, d$drug, d$sex)))
   out(paste0("means_", v), effect(slope(v, mean(d$dose), mean(d$age), "gamma", mean(d$sex))))

@@ -5,14 +5,12 @@
 # the stages m = 1..min(y, 4): event y = m, an intercept per stage, the
 # same slopes), so P(y = k) = h_k prod_{i<k} (1 - h_i), h_m = plogis(a_m +
 # x'beta). dP/dage is written out (the derivative of each h through the
-# chain rule, with dx/dage = (1, 2 age, 3 age^2, 0)); its gradient in glm's
-# coefficients is taken by central differences refined by Richardson's
-# extrapolation over steps h and h/2, the step of each coefficient scaled to
-# its column (1e-4 / max |column|, 1e-4 for the intercepts), and the
-# delta-method standard error is sqrt(G V G') with glm's vcov. Averaged over
+# chain rule, with dx/dage = (1, 2 age, 3 age^2, 0)); its delta-method
+# standard error with glm's vcov is delta's (slopesdelta.R, run first), the
+# step of each coefficient scaled to its column (1e-4 / max |column|, 1e-4
+# for the intercepts). Averaged over
 # the rows, at the means of age and female, and at age 70, female 1. Prints
 # "kind_age e_1 .. e_5 se_1 .. se_5" with 17 significant digits.
-out <- function(name, v) cat(name, sprintf("%.17g", as.numeric(v)), "\n")
 d <- read.csv("srh.csv")
 lev <- c("poor", "fair", "good", "verygood", "excellent")
 J <- 5
@@ -46,21 +44,7 @@ dprobs <- function(th, Xr, dXr) {
   colMeans(dP)
 }
 step <- c(rep(1e-4, J - 1), 1e-4 / apply(abs(Xd), 2, max))
-grad <- function(f) sapply(seq_along(th), function(k) {
-  d1 <- function(h) {
-    e <- rep(0, length(th))
-    e[k] <- h
-    (f(th + e) - f(th - e)) / (2 * h)
-  }
-  a <- d1(step[k])
-  b <- d1(step[k] / 2)
-  b + (b - a) / 3
-})
-effect <- function(age, female) {
-  f <- function(t) dprobs(t, X(age, female), dX(age))
-  G <- grad(f)
-  c(f(th), sqrt(diag(G %*% V %*% t(G))))
-}
+effect <- function(age, female) delta(function(t) dprobs(t, X(age, female), dX(age)), th, V, step)
 out("average_age", effect(d$age, d$female))
 out("means_age", effect(mean(d$age), mean(d$female)))
 out("profile_age", effect(70, 1))
