@@ -27,7 +27,11 @@ func build(r *runner.Result, dec *runner.Decisions, changes []string) *doc {
 	d.toc()
 	if len(changes) > 0 {
 		d.h(2, "Changes since the previous run")
-		d.list(changes)
+		items := make([]string, len(changes))
+		for i, c := range changes {
+			items[i] = mdText(c) // names of columns, levels and models as text
+		}
+		d.list(items)
 	}
 	writeSummary(d, r)
 	writePlan(d, r)

@@ -21,7 +21,7 @@ func Changes(prevDir string, cur *Decisions) ([]string, error) {
 	if err != nil {
 		return nil, err
 	}
-	return ChangesFrom(prev, cur), nil
+	return ChangesFrom(prev, nil, cur, nil), nil
 }
 
 // ReadPrevious reads the decisions record of the earlier run in prevDir
@@ -45,15 +45,17 @@ func ReadPrevious(prevDir string) (*Decisions, error) {
 	return &prev, nil
 }
 
-// ChangesFrom is Changes with the earlier record read (ReadPrevious).
-func ChangesFrom(prev, cur *Decisions) []string {
+// ChangesFrom is Changes with the earlier decisions read (ReadPrevious).
+// With the earlier run's record (its run.json, nil when it could not be
+// read) and this run's columns (Result.Columns; nil: not compared), the
+// columns that changed are named (dataChanges).
+func ChangesFrom(prev *Decisions, prevRec *RunRecord, cur *Decisions, cols []OutcomeColumns) []string {
 	var out []string
-	if prev.Plan.SHA256 != cur.Plan.SHA256 {
+	planChanged := prev.Plan.SHA256 != cur.Plan.SHA256
+	if planChanged {
 		out = append(out, fmt.Sprintf("The plan changed (sha256 %.12s... -> %.12s...).", prev.Plan.SHA256, cur.Plan.SHA256))
 	}
-	if prev.Data.SHA256 != cur.Data.SHA256 {
-		out = append(out, fmt.Sprintf("The data file changed (sha256 %.12s... -> %.12s...).", prev.Data.SHA256, cur.Data.SHA256))
-	}
+	out = append(out, dataChanges(prev, prevRec, cur, cols, planChanged)...)
 	switch pn, cn := prev.NewRows, cur.NewRows; {
 	case pn == nil && cn != nil:
 		out = append(out, fmt.Sprintf("Predictions for new rows (%s) are new.", cn.File))
@@ -106,6 +108,58 @@ func ChangesFrom(prev, cur *Decisions) []string {
 	return out
 }
 
+// dataChanges says how the data changed: the file, or each part that
+// changed, is new or is no longer read, by name (dataRefChanges), then
+// the columns of each outcome that changed and how (ColumnChanges), from
+// the earlier record's data_columns; an earlier record without them (an
+// older program's) is said to lack them. Columns are compared too when
+// only the plan changed (it may read the same data otherwise: other
+// missing-value markers, another subset), and then say nothing when
+// they are the same.
+func dataChanges(prev *Decisions, prevRec *RunRecord, cur *Decisions, cols []OutcomeColumns, planChanged bool) []string {
+	dataChanged := prev.Data.SHA256 != cur.Data.SHA256
+	var out []string
+	if dataChanged {
+		what := "The data changed"
+		if ch := dataRefChanges(&prev.Data, &cur.Data); len(ch) > 0 {
+			what = capitalize(strings.Join(ch, "; "))
+		}
+		hash := "sha256"
+		if cur.Data.Parts != nil || prev.Data.Parts != nil {
+			hash = "sha256 of the parts' sha256s"
+		}
+		out = append(out, fmt.Sprintf("%s (%s %.12s... -> %.12s...).", what, hash, prev.Data.SHA256, cur.Data.SHA256))
+	}
+	if cols == nil || (!dataChanged && !planChanged) {
+		return out
+	}
+	switch {
+	case prevRec == nil:
+		if dataChanged {
+			out = append(out, "The folder of --previous holds no readable run.json (the earlier run's record), so which columns of the data changed cannot be said.")
+		}
+	case prevRec.DataColumns == nil:
+		if dataChanged {
+			out = append(out, "The earlier run did not record per-column fingerprints of its data (its run.json was written by an older ordplan), so which columns of the data changed cannot be said.")
+		}
+	default:
+		for _, c := range ColumnChanges(prevRec.DataColumns, cols) {
+			if dataChanged || !strings.Contains(c, noColumnChanged) {
+				out = append(out, c+".")
+			}
+		}
+	}
+	return out
+}
+
+// capitalize writes s with its first letter in upper case.
+func capitalize(s string) string {
+	if s == "" {
+		return s
+	}
+	return strings.ToUpper(s[:1]) + s[1:]
+}
+
 // countsChange says how the outcome's category counts changed ("counts
 // per category poor 95, fair 184 (was 96, 184)"), or "" when they did not
 // or the categories differ (the plan changed, which is said already).
@@ -149,7 +203,12 @@ func chosenChanges(outcome, id string, p, o OutcomeDecisions) []string {
 			worst, at = d, name
 		}
 	}
-	if worst > 0 {
+	switch {
+	case worst > 0 && numfmt.Fixed(worst, 3) == "0.000":
+		// Rounding alone (the same rows summed in another order): no
+		// estimate moves at the digits written.
+		out = append(out, fmt.Sprintf("%s: %s, chosen in both runs: its estimates moved by less than 0.001 standard errors (of the earlier run), in the last digits only.", outcome, id))
+	case worst > 0:
 		out = append(out, fmt.Sprintf("%s: %s, chosen in both runs: its estimates moved by at most %s standard errors (of the earlier run), the most %s (%s -> %s); log-likelihood %s -> %s.",
 			outcome, id, numfmt.Fixed(worst, 3), at, numfmt.Est(pf.Estimates[at]), numfmt.Est(of.Estimates[at]), numfmt.Fixed(*pf.LogLik, 3), numfmt.Fixed(*of.LogLik, 3)))
 	}
@@ -162,6 +221,9 @@ func chosenChanges(outcome, id string, p, o OutcomeDecisions) []string {
 				was, now := numfmt.PValue(ph.Test.P), numfmt.PValue(h.Test.P)
 				if was == now {
 					was, now = numfmt.Num(ph.Test.P), numfmt.Num(h.Test.P)
+				}
+				if was == now {
+					continue // the same to six digits: rounding only, as when the rows are reordered
 				}
 				out = append(out, fmt.Sprintf("%s: hypothesis %q in %s: p %s -> %s.", outcome, h.Text, id, was, now))
 			}

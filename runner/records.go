@@ -369,6 +369,10 @@ type RunRecord struct {
 	Data    *DataRef  `json:"data,omitempty"` // absent when no data file is read (ordplan power)
 	NewRows *DataRef  `json:"new_rows,omitempty"`
 	Imputed []DataRef `json:"imputed,omitempty"` // the imputed data files
+	// DataColumns summarise and fingerprint the columns each outcome
+	// reads, in the rows it uses (OutcomeColumns; absent in records of
+	// older programs, and in ordplan power's).
+	DataColumns []OutcomeColumns `json:"data_columns,omitempty"`
 	// Imputation: how the program imputed each outcome's data (data.missing: impute).
 	Imputation []*ChainedRecord `json:"imputation,omitempty"`
 	Seed       uint64           `json:"seed"`
@@ -394,7 +398,7 @@ func RunJSON(r *Result, madeBy string, files map[string][]byte) ([]byte, error) 
 	data := withSheet(dataRef(r), r)
 	rec := RunRecord{Program: "ordplan", Version: r.Version,
 		Plan: PlanRef{File: filepath.Base(r.Plan.Path), Title: r.Plan.Title, SHA256: r.Plan.Hash},
-		Data: &data, NewRows: newRowsSheet(newRowsRef(r), r), Imputed: r.Imputed, Seed: r.Plan.Seed}
+		Data: &data, NewRows: newRowsSheet(newRowsRef(r), r), Imputed: r.Imputed, DataColumns: r.Columns, Seed: r.Plan.Seed}
 	rec.Timestamp = r.Started
 	for _, or := range r.Outcomes {
 		if or.Imputed != nil && or.Imputed.Chained != nil {

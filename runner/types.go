@@ -19,7 +19,10 @@ type Result struct {
 	// (inference.predict), "" when there is none.
 	NewRowsHash string
 	// Imputed names the imputed data files of the run with their hashes.
-	Imputed  []DataRef
+	Imputed []DataRef
+	// Columns summarise and fingerprint the columns each outcome reads,
+	// in the rows it uses (dataColumns; run.json's data_columns).
+	Columns  []OutcomeColumns
 	Version  string
 	Outcomes []*OutcomeResult
 	Notes    []string // run-level remarks (covariance, weights)

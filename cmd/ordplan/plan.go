@@ -155,7 +155,8 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	dec := runner.BuildDecisions(res)
 	var changes []string
 	if prev != nil {
-		changes = runner.ChangesFrom(prev, dec)
+		prevRec, _ := readRecord(filepath.Join(*previous, recordFile))
+		changes = runner.ChangesFrom(prev, prevRec, dec, res.Columns)
 	}
 	files, err := render.Outputs(res, dec, changes)
 	if err != nil {

@@ -1,0 +1,389 @@
+package runner
+
+import (
+	"crypto/sha256"
+	"encoding/binary"
+	"encoding/hex"
+	"fmt"
+	"hash"
+	"math"
+	"slices"
+	"strconv"
+	"strings"
+
+	"ordplan/render/numfmt"
+	"ordplan/runner/data"
+)
+
+// OutcomeColumns is, in run.json, what one outcome's data held: for each
+// column the outcome reads (the outcome, the predictors, the weights,
+// the offset, the cluster) a summary and two fingerprints of its values
+// in the rows used, so that a rerun on corrected data can say which
+// columns changed and how (ColumnChanges). It is of the data as read
+// (OutcomeResult.AsRead: on imputed data the original file, incomplete
+// rows kept), made after the rows are read (dataColumns), for plan runs
+// only: ordplan fit does not make it.
+type OutcomeColumns struct {
+	Outcome string `json:"outcome"`
+	// Rows are the rows used (with imputation, the rows kept for it).
+	Rows int `json:"rows"`
+	// RowsMultiset is a fingerprint of the rows that does not depend on
+	// their order: the same rows, every used value of each together, in
+	// any order give the same; a value moved to another row does not.
+	RowsMultiset string        `json:"rows_multiset"`
+	Columns      []ColumnPrint `json:"columns"`
+}
+
+// ColumnPrint is one column of OutcomeColumns.
+type ColumnPrint struct {
+	Column string `json:"column"`
+	// Role is what the outcome reads it as: outcome, predictor, weights,
+	// offset or cluster.
+	Role string `json:"role"`
+	// Values are the rows used that hold a value (imputation keeps rows
+	// missing one); Missing the rows missing it among those no subset
+	// condition excludes (the missing-value table's count).
+	Values  int `json:"values"`
+	Missing int `json:"missing"`
+	// Sum, Mean, Min and Max summarise a numeric column's values (sampling
+	// weights as read, rescaled to sum to the rows).
+	Sum  *float64 `json:"sum,omitempty"`
+	Mean *float64 `json:"mean,omitempty"`
+	Min  *float64 `json:"min,omitempty"`
+	Max  *float64 `json:"max,omitempty"`
+	// Levels count the rows of each category of the outcome or level of
+	// a categorical predictor (rows, not weights), in their order.
+	Levels []LevelCount `json:"levels,omitempty"`
+	// Clusters is the number of distinct clusters of the cluster column.
+	Clusters int `json:"clusters,omitempty"`
+	// ValuesSHA256 is the SHA-256 of the values in row order: it changes
+	// when a value changes or moves to another row. ValuesMultiset does
+	// not depend on the order: the same values in other rows give the
+	// same.
+	ValuesSHA256   string `json:"values_sha256"`
+	ValuesMultiset string `json:"values_multiset"`
+}
+
+// LevelCount is the number of rows of one level.
+type LevelCount struct {
+	Level string `json:"level"`
+	Rows  int    `json:"rows"`
+}
+
+// dataColumns is the record of the columns of every outcome of a run
+// (OutcomeColumns), in plan order.
+func dataColumns(res *Result) []OutcomeColumns {
+	out := make([]OutcomeColumns, 0, len(res.Outcomes))
+	for _, or := range res.Outcomes {
+		out = append(out, outcomeColumns(or.AsRead(), or.dataOptions))
+	}
+	return out
+}
+
+// column is one column of a Dataset, for printing: its values as numbers
+// (category or level indexes for categorical ones, missing as NaN or -1),
+// or texts (the cluster).
+type column struct {
+	name, role string
+	at         func(i int) float64 // nil for texts
+	text       []string
+	levels     []string // categorical: the labels of the indexes
+}
+
+// outcomeColumns prints the columns of one outcome's data set.
+func outcomeColumns(ds *data.Dataset, opt data.Options) OutcomeColumns {
+	outcome, levels := opt.Outcome, opt.PredictorLevels
+	cols := []column{{name: outcome, role: "outcome", levels: ds.Categories, at: func(i int) float64 { return float64(ds.Y[i]) }}}
+	for k, p := range ds.Predictors {
+		cols = append(cols, column{name: p, role: "predictor", levels: levels[p], at: func(i int) float64 { return ds.X[i*ds.K+k] }})
+	}
+	if ds.Weights != nil {
+		cols = append(cols, column{name: opt.Weights, role: "weights", at: func(i int) float64 { return ds.Weights[i] }})
+	}
+	if ds.Offset != nil {
+		cols = append(cols, column{name: opt.Offset, role: "offset", at: func(i int) float64 { return ds.Offset[i] }})
+	}
+	if ds.Cluster != nil {
+		cols = append(cols, column{name: opt.Cluster, role: "cluster", text: ds.Cluster})
+	}
+	missing := map[string]int{}
+	if t := ds.Missing; t != nil {
+		for j, c := range t.Columns {
+			missing[c] = t.ByColumn[j]
+		}
+	}
+	rows := make([]uint64, ds.N) // each row's values, mixed column by column
+	rec := OutcomeColumns{Outcome: outcome, Rows: ds.N}
+	for j, c := range cols {
+		cp := c.print(ds.N, uint64(j+1), rows)
+		cp.Missing = missing[c.name]
+		rec.Columns = append(rec.Columns, cp)
+	}
+	var sum uint64
+	for _, r := range rows {
+		sum += mix64(r)
+	}
+	rec.RowsMultiset = hex64(sum)
+	return rec
+}
+
+// print summarises the column over n rows and mixes its values into the
+// rows' fingerprints (salt: the column's place).
+func (c column) print(n int, salt uint64, rows []uint64) ColumnPrint {
+	cp := ColumnPrint{Column: c.name, Role: c.role}
+	h := sha256.New()
+	w := hashWriter{h: h}
+	var set uint64
+	if c.text != nil {
+		seen := map[string]bool{}
+		for i, s := range c.text {
+			w.u64(uint64(len(s)))
+			w.str(s)
+			v := mix64(fnv64(s) + salt*golden)
+			set += v
+			rows[i] = mix64(rows[i] ^ v)
+			seen[s] = true
+		}
+		cp.Values, cp.Clusters = n, len(seen)
+	} else {
+		categorical := c.levels != nil
+		var counts []int
+		if categorical {
+			counts = make([]int, len(c.levels))
+			for _, l := range c.levels { // the labels take part: a relabelled level is another value
+				w.u64(uint64(len(l)))
+				w.str(l)
+			}
+		}
+		sum, lo, hi := 0.0, math.Inf(1), math.Inf(-1)
+		for i := range n {
+			x := c.at(i)
+			missing := math.IsNaN(x) || (categorical && x < 0)
+			var bits uint64
+			switch {
+			case missing:
+				bits = math.Float64bits(math.NaN())
+			case x == 0:
+				bits = 0 // -0 as 0
+			default:
+				bits = math.Float64bits(x)
+			}
+			w.u64(bits)
+			v := mix64(bits + salt*golden)
+			set += v
+			rows[i] = mix64(rows[i] ^ v)
+			if missing {
+				continue
+			}
+			cp.Values++
+			if categorical {
+				if k := int(x); k < len(counts) {
+					counts[k]++
+				}
+				continue
+			}
+			sum += x
+			lo, hi = min(lo, x), max(hi, x)
+		}
+		if categorical {
+			for k, l := range c.levels {
+				cp.Levels = append(cp.Levels, LevelCount{Level: l, Rows: counts[k]})
+			}
+		} else if cp.Values > 0 {
+			mean := sum / float64(cp.Values)
+			cp.Sum, cp.Mean, cp.Min, cp.Max = &sum, &mean, &lo, &hi
+		}
+	}
+	w.flush()
+	cp.ValuesSHA256 = hex.EncodeToString(h.Sum(nil))
+	cp.ValuesMultiset = hex64(set)
+	return cp
+}
+
+// golden is the odd constant of the 64-bit mixer's sequence.
+const golden = 0x9e3779b97f4a7c15
+
+// mix64 is a bijective 64-bit mixer (the finaliser of a splitmix
+// sequence): values that differ in one bit differ in about half.
+func mix64(x uint64) uint64 {
+	x += golden
+	x = (x ^ x>>30) * 0xbf58476d1ce4e5b9
+	x = (x ^ x>>27) * 0x94d049bb133111eb
+	return x ^ x>>31
+}
+
+// fnv64 is the 64-bit FNV-1a hash of a text.
+func fnv64(s string) uint64 {
+	h := uint64(14695981039346656037)
+	for i := 0; i < len(s); i++ {
+		h = (h ^ uint64(s[i])) * 1099511628211
+	}
+	return h
+}
+
+func hex64(x uint64) string { return fmt.Sprintf("%016x", x) }
+
+// hashWriter writes to a hash through a buffer (a write per value would
+// cost more than the hashing).
+type hashWriter struct {
+	h   hash.Hash
+	buf [4096]byte
+	n   int
+}
+
+func (w *hashWriter) u64(x uint64) {
+	if w.n+8 > len(w.buf) {
+		w.flush()
+	}
+	binary.LittleEndian.PutUint64(w.buf[w.n:], x)
+	w.n += 8
+}
+
+func (w *hashWriter) str(s string) {
+	for len(s) > 0 {
+		if w.n == len(w.buf) {
+			w.flush()
+		}
+		k := copy(w.buf[w.n:], s)
+		w.n += k
+		s = s[k:]
+	}
+}
+
+func (w *hashWriter) flush() {
+	w.h.Write(w.buf[:w.n])
+	w.n = 0
+}
+
+// ColumnChanges says which columns of each outcome's data changed between
+// an earlier run's record of them (was) and this run's (now), and how,
+// where the summaries tell it: one line per column, led by the outcome.
+// A column whose values are the same in other rows says so (values
+// exchanged between rows). Rows that are the same, every column's values
+// together, only in another order are said once per outcome and no
+// column is named: a reordering changes no fit. An outcome whose columns
+// are all the same, though the data changed, says that the change is
+// elsewhere. An outcome or a column in one run only is not compared (the
+// plan changed, which is said already). was nil: the earlier record did
+// not hold the columns (an older program); the caller says so.
+func ColumnChanges(was, now []OutcomeColumns) []string {
+	var out []string
+	for _, n := range now {
+		i := slices.IndexFunc(was, func(w OutcomeColumns) bool { return w.Outcome == n.Outcome })
+		if i < 0 {
+			continue
+		}
+		out = append(out, outcomeColumnChanges(was[i], n)...)
+	}
+	return out
+}
+
+// noColumnChanged begins the line of an outcome whose columns are the
+// same.
+const noColumnChanged = "no column this outcome uses changed in the rows it uses"
+
+func outcomeColumnChanges(was, now OutcomeColumns) []string {
+	type pair struct{ was, now ColumnPrint }
+	var pairs []pair
+	for _, c := range now.Columns {
+		for _, w := range was.Columns {
+			if w.Column == c.Column && w.Role == c.Role {
+				pairs = append(pairs, pair{w, c})
+			}
+		}
+	}
+	var moved, changed int
+	kind := make([]int, len(pairs)) // 0 the same, 1 moved, 2 changed
+	for i, p := range pairs {
+		switch {
+		case p.was.ValuesSHA256 == p.now.ValuesSHA256:
+		case p.was.ValuesMultiset == p.now.ValuesMultiset && p.was.Values == p.now.Values:
+			kind[i] = 1
+			moved++
+		default:
+			kind[i] = 2
+			changed++
+		}
+	}
+	who := now.Outcome + ": "
+	if changed == 0 && moved == 0 {
+		return []string{who + noColumnChanged + " (the data changed in columns it does not read, or in rows it does not use: outside the subset, or dropped for a missing value)"}
+	}
+	if changed == 0 && was.Rows == now.Rows && was.RowsMultiset == now.RowsMultiset {
+		return []string{fmt.Sprintf("%sthe %d rows used are the same, in another order: no value of a column changed (a reordering of the rows changes no fit beyond rounding in the last digits, so no column is named)", who, now.Rows)}
+	}
+	var out []string
+	for i, p := range pairs {
+		lead := fmt.Sprintf("%scolumn %s (%s) changed: ", who, p.now.Column, p.now.Role)
+		switch d := summaryChanges(p.was, p.now); {
+		case kind[i] == 0:
+		case kind[i] == 1:
+			out = append(out, lead+"the same values in other rows (values exchanged between rows; its "+sameSummaries(p.now)+" are the same)")
+		case len(d) > 0:
+			out = append(out, lead+strings.Join(d, ", "))
+		default:
+			out = append(out, lead+"other values, with the same "+sameSummaries(p.now))
+		}
+	}
+	return out
+}
+
+// sameSummaries names the summaries of a column that did not change.
+func sameSummaries(c ColumnPrint) string {
+	switch {
+	case c.Levels != nil:
+		return "counts per level and of missing values"
+	case c.Clusters > 0:
+		return "numbers of values, of clusters and of missing values"
+	}
+	return "number of values, of missing values, sum, smallest and largest value"
+}
+
+// summaryChanges lists how a column's summaries changed: values,
+// missing, sum, mean, smallest, largest, the count of each level, the
+// number of clusters.
+func summaryChanges(was, now ColumnPrint) []string {
+	var d []string
+	if was.Values != now.Values {
+		d = append(d, fmt.Sprintf("values %d -> %d", was.Values, now.Values))
+	}
+	if was.Missing != now.Missing {
+		d = append(d, fmt.Sprintf("missing %d -> %d", was.Missing, now.Missing))
+	}
+	for _, s := range []struct {
+		what     string
+		was, now *float64
+	}{{"sum", was.Sum, now.Sum}, {"mean", was.Mean, now.Mean}, {"smallest", was.Min, now.Min}, {"largest", was.Max, now.Max}} {
+		if s.was != nil && s.now != nil && *s.was != *s.now {
+			a, b := numPair(*s.was, *s.now)
+			d = append(d, fmt.Sprintf("%s %s -> %s", s.what, a, b))
+		}
+	}
+	if was.Clusters != now.Clusters {
+		d = append(d, fmt.Sprintf("clusters %d -> %d", was.Clusters, now.Clusters))
+	}
+	before := map[string]int{}
+	for _, l := range was.Levels {
+		before[l.Level] = l.Rows
+	}
+	var lv []string
+	for _, l := range now.Levels {
+		if b, ok := before[l.Level]; ok && b != l.Rows {
+			lv = append(lv, fmt.Sprintf("%s %d -> %d", l.Level, b, l.Rows))
+		}
+	}
+	if len(lv) > 0 {
+		d = append(d, "rows per level "+strings.Join(lv, ", "))
+	}
+	return d
+}
+
+// numPair writes two different numbers so that they read differently:
+// as the tables do, else with every digit needed.
+func numPair(a, b float64) (string, string) {
+	x, y := numfmt.Num(a), numfmt.Num(b)
+	if x == y {
+		x, y = strconv.FormatFloat(a, 'g', -1, 64), strconv.FormatFloat(b, 'g', -1, 64)
+	}
+	return x, y
+}
