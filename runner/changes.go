@@ -272,7 +272,11 @@ func RecordChanges(was, now *RunRecord) []string {
 	if was.Plan.SHA256 != now.Plan.SHA256 {
 		out = append(out, "the plan changed")
 	}
-	out = append(out, dataRefChanges(was.Data, now.Data)...)
+	dc := dataRefChanges(was.Data, now.Data)
+	if names := changedColumns(was.DataColumns, now.DataColumns); len(dc) > 0 && len(names) > 0 {
+		dc[len(dc)-1] += fmt.Sprintf(" (%s %s)", plural("column", len(names)), words.AndList(names))
+	}
+	out = append(out, dc...)
 	out = append(out, fileChanges("the new-rows file", refList(was.NewRows), refList(now.NewRows))...)
 	out = append(out, fileChanges("the imputed set", was.Imputed, now.Imputed)...)
 	if was.Registration != nil && !sameJSON(was.Registration, now.Registration) {

@@ -21,8 +21,8 @@ import (
 // in the rows used, so that a rerun on corrected data can say which
 // columns changed and how (ColumnChanges). It is of the data as read
 // (OutcomeResult.AsRead: on imputed data the original file, incomplete
-// rows kept), made after the rows are read (dataColumns), for plan runs
-// only: ordplan fit does not make it.
+// rows kept), made after the rows are read (Result.DataColumns), for the
+// runs that write run.json: ordplan fit does not make it.
 type OutcomeColumns struct {
 	Outcome string `json:"outcome"`
 	// Rows are the rows used (with imputation, the rows kept for it).
@@ -70,8 +70,18 @@ type LevelCount struct {
 	Rows  int    `json:"rows"`
 }
 
-// dataColumns is the record of the columns of every outcome of a run
-// (OutcomeColumns), in plan order.
+// DataColumns is the record of the columns of every outcome of a run
+// (OutcomeColumns), in plan order, for run.json and the comparison with
+// an earlier run: made when first asked (a pass over the rows read, in
+// memory), so that runs that write no record (the replicates of a power
+// study) do not make it.
+func (res *Result) DataColumns() []OutcomeColumns {
+	if res.columns == nil {
+		res.columns = dataColumns(res)
+	}
+	return res.columns
+}
+
 func dataColumns(res *Result) []OutcomeColumns {
 	out := make([]OutcomeColumns, 0, len(res.Outcomes))
 	for _, or := range res.Outcomes {
@@ -278,6 +288,34 @@ func ColumnChanges(was, now []OutcomeColumns) []string {
 	return out
 }
 
+// changedColumns names the columns whose values differ between two
+// records (in any outcome, each once, in the order of the later record);
+// none when either lacks them.
+func changedColumns(was, now []OutcomeColumns) []string {
+	var names []string
+	for _, n := range now {
+		for _, w := range was {
+			if w.Outcome != n.Outcome || sameRows(w, n) {
+				continue // the same rows, maybe in another order: no column named
+			}
+			for _, c := range n.Columns {
+				for _, p := range w.Columns {
+					if p.Column == c.Column && p.Role == c.Role && p.ValuesSHA256 != c.ValuesSHA256 && !slices.Contains(names, c.Column) {
+						names = append(names, c.Column)
+					}
+				}
+			}
+		}
+	}
+	return names
+}
+
+// sameRows says whether two records hold the same rows, every used value
+// of each together, in any order.
+func sameRows(was, now OutcomeColumns) bool {
+	return was.Rows == now.Rows && was.RowsMultiset == now.RowsMultiset
+}
+
 // noColumnChanged begins the line of an outcome whose columns are the
 // same.
 const noColumnChanged = "no column this outcome uses changed in the rows it uses"
@@ -296,7 +334,11 @@ func outcomeColumnChanges(was, now OutcomeColumns) []string {
 	kind := make([]int, len(pairs)) // 0 the same, 1 moved, 2 changed
 	for i, p := range pairs {
 		switch {
+		case p.was.ValuesSHA256 == p.now.ValuesSHA256 && len(summaryChanges(p.was, p.now)) == 0:
+			// (the same values may miss in more rows that are not used)
 		case p.was.ValuesSHA256 == p.now.ValuesSHA256:
+			kind[i] = 2
+			changed++
 		case p.was.ValuesMultiset == p.now.ValuesMultiset && p.was.Values == p.now.Values:
 			kind[i] = 1
 			moved++
@@ -309,7 +351,7 @@ func outcomeColumnChanges(was, now OutcomeColumns) []string {
 	if changed == 0 && moved == 0 {
 		return []string{who + noColumnChanged + " (the data changed in columns it does not read, or in rows it does not use: outside the subset, or dropped for a missing value)"}
 	}
-	if changed == 0 && was.Rows == now.Rows && was.RowsMultiset == now.RowsMultiset {
+	if changed == 0 && sameRows(was, now) {
 		return []string{fmt.Sprintf("%sthe %d rows used are the same, in another order: no value of a column changed (a reordering of the rows changes no fit beyond rounding in the last digits, so no column is named)", who, now.Rows)}
 	}
 	var out []string

@@ -398,7 +398,7 @@ func RunJSON(r *Result, madeBy string, files map[string][]byte) ([]byte, error) 
 	data := withSheet(dataRef(r), r)
 	rec := RunRecord{Program: "ordplan", Version: r.Version,
 		Plan: PlanRef{File: filepath.Base(r.Plan.Path), Title: r.Plan.Title, SHA256: r.Plan.Hash},
-		Data: &data, NewRows: newRowsSheet(newRowsRef(r), r), Imputed: r.Imputed, DataColumns: r.Columns, Seed: r.Plan.Seed}
+		Data: &data, NewRows: newRowsSheet(newRowsRef(r), r), Imputed: r.Imputed, DataColumns: r.DataColumns(), Seed: r.Plan.Seed}
 	rec.Timestamp = r.Started
 	for _, or := range r.Outcomes {
 		if or.Imputed != nil && or.Imputed.Chained != nil {

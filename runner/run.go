@@ -79,7 +79,6 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 		res.Outcomes = append(res.Outcomes, or)
 	}
 	res.DataHash = dataHash()
-	res.Columns = dataColumns(res)
 	var scopes []plan.ParameterScope
 	for _, or := range res.Outcomes {
 		scopes = append(scopes, hypothesisScope(or.Outcome.Column, or.Design, or.Data.Categories))

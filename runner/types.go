@@ -20,9 +20,8 @@ type Result struct {
 	NewRowsHash string
 	// Imputed names the imputed data files of the run with their hashes.
 	Imputed []DataRef
-	// Columns summarise and fingerprint the columns each outcome reads,
-	// in the rows it uses (dataColumns; run.json's data_columns).
-	Columns  []OutcomeColumns
+	// columns: DataColumns, made when first asked.
+	columns  []OutcomeColumns
 	Version  string
 	Outcomes []*OutcomeResult
 	Notes    []string // run-level remarks (covariance, weights)
