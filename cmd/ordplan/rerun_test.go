@@ -93,7 +93,7 @@ func TestRerunNamesChangedColumns(t *testing.T) {
 	}
 	// Two rows of other outcome categories, to exchange them.
 	x, y := 0, 1
-	for (1+(y*7+y%5)%3) == (1 + (x*7+x%5)%3) {
+	for (1 + (y*7+y%5)%3) == (1 + (x*7+x%5)%3) {
 		y++
 	}
 	cases := []struct {
