@@ -433,7 +433,7 @@ func writeFilesSection(d *doc, r *runner.Result) {
 	rows := [][]string{
 		{"report.md, report.html", "this report (Markdown with SVG figures; HTML with interactive charts)"},
 		{"decisions.json", "every fit, test and verdict in machine-readable form"},
-		{"run.json", "what produced the outputs: program, plan, data, seed, environment, command line and the hash of every file"},
+		{"run.json", "what produced the outputs: program, plan, data (with a summary and fingerprints of each column used, which a rerun with --previous compares), seed, environment, command line and the hash of every file"},
 	}
 	for _, or := range r.Outcomes {
 		for _, f := range tableFiles(r, or) {

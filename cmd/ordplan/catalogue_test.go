@@ -1841,6 +1841,27 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("the run went on to its output folder: %v", err)
 				}
 			}},
+		// The earlier run's folder lacks its run.json, or holds one an
+		// older program wrote, without the columns of the data: the rerun
+		// on changed data says which columns changed cannot be said.
+		{id: "R9", name: "--previous naming a folder without its run.json", args: []string{"run", "--previous", filepath.Join(dir, "R9-first")}, plan: goodPlan, code: 0,
+			setup: func(t *testing.T, dir, id string) {
+				earlierRun(t, dir, id, func(rec string) string { return "" })
+			},
+			want: []string{"change: The data file is now d.csv (was R9-d.csv) (sha256 ", "change: The folder of --previous holds no readable run.json (the earlier run's record), so which columns of the data changed cannot be said.\n"}},
+		{id: "R10", name: "--previous naming the folder of a run whose run.json an older ordplan wrote", args: []string{"run", "--previous", filepath.Join(dir, "R10-first")}, plan: goodPlan, code: 0,
+			setup: func(t *testing.T, dir, id string) {
+				earlierRun(t, dir, id, func(rec string) string {
+					var r map[string]any
+					if err := json.Unmarshal([]byte(rec), &r); err != nil {
+						t.Fatal(err)
+					}
+					delete(r, "data_columns")
+					b, _ := json.Marshal(r)
+					return string(b)
+				})
+			},
+			want: []string{"change: The earlier run did not record per-column fingerprints of its data (its run.json was written by an older ordplan), so which columns of the data changed cannot be said.\n"}},
 		{id: "O2", name: "second run into a folder being written", args: []string{"run"}, plan: goodPlan, code: 1,
 			want: []string{"O2-out: another ordplan run is writing there (held by process "}},
 		{id: "O3", name: "outcomes that map to one file name", args: []string{"run"},
@@ -2221,5 +2242,33 @@ func commandLineItems(dir string) []badInput {
 			}},
 		{id: "C4", name: "help on a topic that does not exist", args: []string{"help", "plans"}, code: 2,
 			want: []string{`ordplan help: no command or topic "plans" (commands: run, check, fit, init, rehearse, power, freeze, worker, schema, version; topic: plan)`}},
+	}
+}
+
+// earlierRun makes the folder ID-first of an earlier run of the catalogue's
+// plan on other data (ID-d.csv: d.csv without its last row), its run.json
+// then replaced by edit's text ("": removed).
+func earlierRun(t *testing.T, dir, id string, edit func(rec string) string) {
+	t.Helper()
+	b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.SplitAfter(strings.TrimSuffix(string(b), "\n"), "\n")
+	os.WriteFile(filepath.Join(dir, id+"-d.csv"), []byte(strings.Join(lines[:len(lines)-1], "")), 0o644)
+	src := filepath.Join(dir, id+"-earlier.yaml")
+	os.WriteFile(src, []byte(strings.Replace(goodPlan, "file: d.csv", "file: "+id+"-d.csv", 1)), 0o644)
+	first := filepath.Join(dir, id+"-first")
+	if _, errs, code := runCLI("run", src, "--out", first, "--quiet"); code != 0 {
+		t.Fatalf("the earlier run: exit %d: %s", code, errs)
+	}
+	rec, err := os.ReadFile(filepath.Join(first, "run.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if now := edit(string(rec)); now == "" {
+		os.Remove(filepath.Join(first, "run.json"))
+	} else {
+		os.WriteFile(filepath.Join(first, "run.json"), []byte(now), 0o644)
 	}
 }
