@@ -1971,6 +1971,8 @@ func catalogue(dir string) (items []badInput) {
 			}},
 		{id: "Q9", name: "ordplan fit with --data and --parts", args: fitArgs(d("d.csv"), "--predictors", "a", "--parts", "p1.csv,p2.csv"), code: 2,
 			want: []string{"ordplan fit: give --data (one file) or --parts (the data as several files), not both"}},
+		{id: "Q12", name: "a worker whose --cache cannot hold files", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-secret-file", d("queue.key"), "--cache", d("d.csv")}, code: 1,
+			want: []string{"data cache d.csv: mkdir d.csv: not a directory (give --cache a folder this worker can write)"}},
 		{id: "Q3", name: "secret file too short", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-secret-file", d("short.key")}, code: 1,
 			want: []string{"short.key: 5 bytes; a shared secret needs at least 16"}},
 		{id: "Q4", name: "TLS certificate without its key", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-cert", d("d.csv")}, code: 1,
@@ -2167,6 +2169,7 @@ func TestBadInputCatalogue(t *testing.T) {
 var testedElsewhere = map[string]struct{ file, name string }{
 	"O8":  {"outdir_test.go", "TestInterruptMessages"},
 	"Q11": {"../../runner/queue/hostile_test.go", "TestJobDeadlineNamesThePart"},
+	"Q13": {"../../runner/queue/faults_test.go", "TestWorkerFaultStopsRunOrIsRetried"},
 }
 
 // Every item of the catalogue is in docs/bad-inputs.md, and every item

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"errors"
 	"fmt"
 	"io"
 	"strings"
@@ -60,8 +61,9 @@ func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, std
 		// in time) is a test not computed, as on the local path: the fit
 		// itself is done and is printed.
 		// An interrupt still stops the command.
+		// A fault of a worker or of the queue (queue.FaultError) is not.
 		if lz, err = queue.LipsitzPartitioned(ctx, c, refs, whole, res, popt); err != nil {
-			if ctx.Err() != nil {
+			if fe := (*queue.FaultError)(nil); ctx.Err() != nil || errors.As(err, &fe) {
 				return fail(stderr, err)
 			}
 			lz = &fit.Lipsitz{Test: fit.Test{Name: "lipsitz", Reason: "over the parts: " + err.Error()}}

@@ -74,6 +74,9 @@ func runWorker(args []string, stdout, stderr io.Writer, hold time.Duration, hold
 	if err != nil {
 		return usageOrFail("worker", err, stderr)
 	}
+	if err := queue.CacheUsable(*cache); err != nil {
+		return fail(stderr, err)
+	}
 	ctx, c, done, err := connectQueue(cfg, 0)
 	if err != nil {
 		return fail(stderr, err)

@@ -16,38 +16,50 @@ import (
 )
 
 // compute runs one task. Every failure, a panic included, becomes the
-// reply's error text.
+// reply's error text; every failure but the fit's own (a model the data
+// cannot give, a fit or evaluation that fails as it would on any machine)
+// is a fault of the worker (Reply.Fault).
 func (w *Worker) compute(ctx context.Context, t *Task) (r *Reply) {
 	r = &Reply{Batch: t.Batch, Index: t.Index, ID: t.ID}
 	defer func() {
 		if p := recover(); p != nil {
 			w.logf("worker %s: %s: panic: %v\n%s", w.Name, t.ID, p, debug.Stack())
-			r = &Reply{Batch: t.Batch, Index: t.Index, ID: t.ID, Err: fmt.Sprintf("%s: internal error on worker %s: %v", t.ID, w.Name, p)}
+			r = &Reply{Batch: t.Batch, Index: t.Index, ID: t.ID, Fault: true, Err: fmt.Sprintf("%s: internal error on worker %s: %v", t.ID, w.Name, p)}
 		}
 	}()
-	err := w.Limits.check(t)
-	if err != nil {
-		r.Err = err.Error()
-		return r
+	fault := func(err error) *Reply {
+		return &Reply{Batch: t.Batch, Index: t.Index, ID: t.ID, Fault: true, Err: err.Error()}
+	}
+	if err := w.Limits.check(t); err != nil {
+		return fault(err)
 	}
 	switch t.Kind {
 	case KindFit:
 		if t.Fit == nil {
-			err = fmt.Errorf("job %s carries no fit", t.ID)
-			break
+			return fault(fmt.Errorf("job %s carries no fit", t.ID))
 		}
-		var path string
-		if path, err = w.cache.path(ctx, w.Client.data, t.Fit.DataHash, t.Fit.DataFile, w.Limits.DataBytes); err == nil {
-			r.Result, err = runner.ExecuteJob(path, *t.Fit)
+		path, err := w.cache.path(ctx, w.Client.data, t.Fit.DataHash, t.Fit.DataFile, w.Limits.DataBytes)
+		if err != nil {
+			return fault(err)
 		}
+		// The coordinator read these bytes (their hash is checked) with
+		// these options: a failure to read them here is the worker's.
+		ds, err := data.LoadFiles([]string{path}, t.Fit.DataOptions)
+		if err != nil {
+			return fault(err)
+		}
+		r.Result, err = runner.ExecuteJobOn(ds, *t.Fit)
+		if err != nil {
+			r.Result, r.Err = nil, err.Error()
+		}
+		return r
 	case KindSums, KindDiag, KindScores:
 		if t.Part == nil || t.Kind == KindScores && t.Part.Score == nil {
-			err = fmt.Errorf("job %s carries no partition or no question", t.ID)
-			break
+			return fault(fmt.Errorf("job %s carries no partition or no question", t.ID))
 		}
-		var d *fit.Data
-		if d, err = w.partition(ctx, t.Part, t.Kind != KindScores); err != nil {
-			break
+		d, err := w.partition(ctx, t.Part, t.Kind != KindScores)
+		if err != nil {
+			return fault(err)
 		}
 		switch t.Kind {
 		case KindSums:
@@ -58,16 +70,13 @@ func (w *Worker) compute(ctx context.Context, t *Task) (r *Reply) {
 			r.Scores, err = t.Part.Score.Answer(d)
 		}
 		if err != nil {
-			err = fmt.Errorf("partition %s: %v", t.Part.Name, err)
+			r.Result, r.Sums, r.Scores = nil, nil, nil
+			r.Err = fmt.Sprintf("partition %s: %v", t.Part.Name, err)
 		}
+		return r
 	default:
-		err = fmt.Errorf("job %s: unknown kind %q", t.ID, t.Kind)
+		return fault(fmt.Errorf("job %s: unknown kind %q", t.ID, t.Kind))
 	}
-	if err != nil {
-		r.Result, r.Sums, r.Scores = nil, nil, nil
-		r.Err = err.Error()
-	}
-	return r
 }
 
 // partition returns the fit data of a partition, loaded once per worker;

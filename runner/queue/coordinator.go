@@ -67,6 +67,23 @@ func (co *Coordinator) HoldData(name string, b []byte) (string, error) {
 	return h, nil
 }
 
+// FaultError is a job that failed through a fault of a worker or of the
+// queue (Reply.Fault), after its retries: the run stops with it rather
+// than count the model as one that could not be fitted.
+type FaultError struct {
+	Job, Worker, Text string
+}
+
+func (e *FaultError) Error() string {
+	w := e.Worker
+	if w == "" {
+		w = "a worker"
+	} else {
+		w = "worker " + w
+	}
+	return fmt.Sprintf("queue: job %s failed on %s, not in the fit: %s; the run stops, since such a failure must not count as a model that could not be fitted (check the worker, then run again: fits already made are reused)", e.Job, w, e.Text)
+}
+
 // Err returns the first failure of the queue itself (lost connection,
 // cancelled wait). The per-job errors Execute returns then only repeat it:
 // a run with Err set must not be reported.
@@ -125,6 +142,14 @@ func (co *Coordinator) ExecuteWatched(jobs []runner.Job, finished func(k int)) (
 	}
 	for i, r := range replies {
 		switch {
+		case r.Fault:
+			err := &FaultError{Job: jobs[i].ID, Worker: r.Worker, Text: r.Err}
+			co.mu.Lock()
+			if co.err == nil {
+				co.err = err
+			}
+			co.mu.Unlock()
+			errs[i] = err
 		case r.Err != "":
 			errs[i] = errors.New(r.Err)
 		case r.Result == nil:

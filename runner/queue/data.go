@@ -97,6 +97,25 @@ func DefaultCacheDir() (string, error) {
 	return filepath.Join(base, "ordplan", "data"), nil
 }
 
+// CacheUsable is dataCache.usable of the folder dir: ordplan worker
+// checks its --cache before it connects.
+func CacheUsable(dir string) error { return newDataCache(dir).usable() }
+
+// usable makes the cache folder when it is missing and checks that a file
+// can be written in it: a worker says it is ready only when it can keep
+// the data files it fetches.
+func (dc *dataCache) usable() error {
+	if err := os.MkdirAll(dc.dir, 0o755); err != nil {
+		return fmt.Errorf("data cache %s: %v (give --cache a folder this worker can write)", dc.dir, err)
+	}
+	f, err := os.CreateTemp(dc.dir, "probe.*.part")
+	if err != nil {
+		return fmt.Errorf("data cache %s: %v (give --cache a folder this worker can write)", dc.dir, err)
+	}
+	f.Close()
+	return os.Remove(f.Name())
+}
+
 // path returns the local path of the data file with the given hash,
 // fetching it when it is absent or its bytes do not hash to hash. A file
 // whose fetched bytes do not match is refused.

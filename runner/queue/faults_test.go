@@ -2,7 +2,10 @@ package queue
 
 import (
 	"context"
+	"errors"
 	"math"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 	"time"
@@ -263,5 +266,78 @@ func TestStoredErrorNotReused(t *testing.T) {
 	}
 	if !strings.Contains(clog.String(), "computed again") {
 		t.Errorf("the coordinator does not say the stored error is computed again:\n%s", clog.String())
+	}
+}
+
+// A worker whose cache folder cannot hold files (here: a file) does not
+// say it is ready: it stops with a message naming the folder.
+func TestWorkerWithUnusableCacheRefuses(t *testing.T) {
+	q := newTestQueue(t, 30*time.Second, fit.ParallelEffects)
+	file := filepath.Join(t.TempDir(), "afile")
+	if err := os.WriteFile(file, []byte("not a folder\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	log := &LogBuffer{}
+	w := &Worker{Client: connect(t, q.ctx, q.url), Name: "badcache", CacheDir: file, Log: log}
+	err := w.Run(q.ctx)
+	if err == nil || !strings.Contains(err.Error(), "data cache "+file) || !strings.Contains(err.Error(), "--cache") {
+		t.Fatalf("Run: %v", err)
+	}
+	if strings.Contains(log.String(), "ready") {
+		t.Errorf("the worker said it was ready: %s", log)
+	}
+}
+
+// A job that fails through a fault of the worker (here: a limit it sets
+// below what the job asks) is tried again, then reported as such: the
+// coordinator's error is set, so the run stops instead of counting the
+// model as one that could not be fitted; a good worker beside a bad one
+// gets the jobs done, every result equal to the fit made here.
+func TestWorkerFaultStopsRunOrIsRetried(t *testing.T) {
+	q := newTestQueue(t, 90*time.Second, fit.ParallelEffects, fit.NonparallelEffects)
+	bad := func(url, name string) *LogBuffer {
+		ctx, cancel := context.WithCancel(context.Background())
+		log := &LogBuffer{}
+		w := &Worker{Client: connect(t, ctx, url), Name: name, CacheDir: t.TempDir(), AckWait: 5 * time.Second, Log: log,
+			Limits: Limits{Predictors: 1}}
+		done := make(chan struct{})
+		go func() { defer close(done); w.Run(ctx) }()
+		t.Cleanup(func() { cancel(); <-done })
+		waitFor(t, 10*time.Second, name+" ready", func() bool { return strings.Contains(log.String(), "ready") })
+		return log
+	}
+	log := bad(q.url, "w-bad")
+	co := q.coordinator(t, nil)
+	res, errs := co.Execute(q.jobs)
+	var fe *FaultError
+	if co.Err() == nil || !errors.As(co.Err(), &fe) || fe.Worker != "w-bad" {
+		t.Fatalf("coordinator error %v; errors %v", co.Err(), errs)
+	}
+	for i, err := range errs {
+		if res[i] != nil || err == nil || !strings.Contains(err.Error(), "not in the fit") || !strings.Contains(err.Error(), "has 6 predictors; this worker allows at most 1 ") {
+			t.Errorf("job %d: result %v, error %v", i, res[i] != nil, err)
+		}
+	}
+	if !strings.Contains(log.String(), "left for another try") {
+		t.Errorf("no retry in the worker's log:\n%s", log)
+	}
+
+	// A good worker beside the bad one: every job is done, as here.
+	q2 := newTestQueue(t, 90*time.Second, fit.ParallelEffects, fit.NonparallelEffects)
+	bad(q2.url, "w-bad2")
+	startWorker(t, q2.url, "w-good", 5*time.Second, 0)
+	co2 := q2.coordinator(t, nil)
+	res2, errs2 := co2.Execute(q2.jobs)
+	if co2.Err() != nil {
+		t.Fatalf("with a good worker: %v", co2.Err())
+	}
+	for i, j := range q2.jobs {
+		local, err := runner.ExecuteJob(q2.path, j)
+		if errs2[i] != nil || err != nil {
+			t.Fatalf("job %d: %v / %v", i, errs2[i], err)
+		}
+		if res2[i].LogLik != local.LogLik {
+			t.Errorf("job %d: log-likelihood %v, here %v", i, res2[i].LogLik, local.LogLik)
+		}
 	}
 }

@@ -50,6 +50,10 @@ type PartitionTask struct {
 
 // Reply is what a worker stores for a task. Exactly one of Result, Sums,
 // Scores or Err is meaningful; diagnostics fill Negative and MinProb.
+// Fault marks an Err that is a failure of the worker or the queue
+// (fetching or caching the data, the worker's limits, an internal error,
+// a job no worker finished), not the fit's own outcome: it never enters
+// the rules as a model that could not be fitted; the run stops instead.
 type Reply struct {
 	Batch     string
 	Index     int
@@ -62,6 +66,7 @@ type Reply struct {
 	Negative  int
 	MinProb   float64
 	Err       string
+	Fault     bool
 }
 
 func encode(v any) ([]byte, error) {

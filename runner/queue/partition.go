@@ -146,6 +146,9 @@ func (pr *partRun) eval(kind, id, what, detail string, task func(p PartitionRef)
 		fmt.Fprintf(pr.log, "queue: %s: evaluation %d (%s) over %d partitions\n", what, pr.evals, detail, len(pr.parts))
 	}
 	for _, r := range replies {
+		if r.Fault {
+			return nil, &FaultError{Job: "partition " + r.ID, Worker: r.Worker, Text: r.Err}
+		}
 		if r.Err != "" {
 			return nil, errors.New(r.Err)
 		}

@@ -2,6 +2,7 @@ package queue
 
 import (
 	"encoding/json"
+	"errors"
 	"fmt"
 	"time"
 
@@ -105,6 +106,9 @@ func (co *Coordinator) executeParts(jobs []runner.Job, paths []string, finished 
 		}
 		res, err := FitPartitioned(co.ctx, co.c, w.refs, w.whole, m, PartitionOptions{Data: w.dopt, Fit: j.FitOptions})
 		if err != nil {
+			if fe := (*FaultError)(nil); errors.As(err, &fe) {
+				return nil, fe
+			}
 			if co.ctx.Err() != nil {
 				return nil, fmt.Errorf("queue: %s: %v", outcome, err)
 			}

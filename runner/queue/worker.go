@@ -46,6 +46,9 @@ func (w *Worker) Run(ctx context.Context) error {
 	w.interval = max(w.AckWait/3, 50*time.Millisecond)
 	w.Limits = w.Limits.withDefaults()
 	w.cache = newDataCache(w.CacheDir)
+	if err := w.cache.usable(); err != nil {
+		return err
+	}
 	w.parts = newPartitionCache(4)
 	cons, err := w.Client.js.CreateOrUpdateConsumer(ctx, JobStream, jetstream.ConsumerConfig{
 		Durable:       WorkerGroup,
@@ -96,6 +99,10 @@ func (w *Worker) loop(ctx context.Context, cons jetstream.Consumer) {
 	}
 }
 
+// faultRetryDelay is how long a job whose computation failed through a
+// fault of the worker waits before it is delivered again.
+const faultRetryDelay = time.Second
+
 // handle computes one job, stores its reply and acknowledges it. A job
 // without a valid seal is dropped; a job delivered more than PoisonAfter
 // times (every worker that took it stopped) is answered with an error
@@ -123,17 +130,26 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 	work := context.WithoutCancel(ctx)
 	var r *Reply
 	if delivered > PoisonAfter {
-		r = &Reply{Batch: t.Batch, Index: t.Index, ID: t.ID, Err: fmt.Sprintf(
+		r = &Reply{Batch: t.Batch, Index: t.Index, ID: t.ID, Fault: true, Err: fmt.Sprintf(
 			"%s: the job was delivered %d times and no worker finished it (each one stopped while computing it: out of memory, or killed?); it is not tried again",
 			t.ID, delivered)}
 	} else {
 		r = w.compute(work, t)
 	}
+	if r.Fault && delivered < PoisonAfter {
+		// Perhaps another worker (or this one, later) can: the fault is
+		// stored as the reply only at the last delivery before the
+		// poison rule.
+		stop()
+		w.logf("worker %s: %s: %s (delivery %d; left for another try)", w.Name, t.ID, r.Err, delivered)
+		msg.NakWithDelay(faultRetryDelay)
+		return
+	}
 	r.Worker, r.Delivered = w.Name, delivered
 	key := resultKey(t.Batch, t.Index)
 	b, err := w.sealReply(work, key, r)
 	if err != nil {
-		r = &Reply{Batch: t.Batch, Index: t.Index, ID: t.ID, Worker: w.Name, Delivered: delivered, Err: t.ID + ": " + err.Error()}
+		r = &Reply{Batch: t.Batch, Index: t.Index, ID: t.ID, Worker: w.Name, Delivered: delivered, Fault: true, Err: t.ID + ": " + err.Error()}
 		b, err = w.sealReply(work, key, r)
 	}
 	sctx, cancel := context.WithTimeout(work, 30*time.Second)
