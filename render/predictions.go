@@ -5,6 +5,7 @@ import (
 	"math"
 	"slices"
 	"strconv"
+	"strings"
 
 	"github.com/go-echarts/go-echarts/v2/charts"
 	"github.com/go-echarts/go-echarts/v2/opts"
@@ -27,17 +28,40 @@ func writePredictions(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	if or.Imputed != nil {
 		d.p("On imputed data the curves and the table below are at the pooled estimates, with delta-method errors from the total (within + between) covariance; to first order this equals pooling the predictions of each set. The predictions for new rows are pooled set by set.")
 	}
-	by := r.Plan.Report.PanelsBy
-	if by == "" || or.Design == nil || or.Design.Source(by) < 0 {
+	by, panels := predictionPanels(r, or)
+	if by == "" {
 		writePredictionPanel(d, r, or, nil, "")
 		return
 	}
-	levels, _ := or.Design.Coded(or.Design.Source(by))
 	d.p("One panel per level of %s (report.panels_by), so that the predictions can be compared across its levels, as an interaction needs.", mdCode(by))
-	for _, l := range levels {
-		d.h(4, mdText(fmt.Sprintf("%s = %s", by, l)))
-		writePredictionPanel(d, r, or, map[string]string{by: l}, fmt.Sprintf("%s = %s", by, l))
+	for _, p := range panels {
+		d.h(4, mdText(p.label))
+		writePredictionPanel(d, r, or, p.fixed, p.label)
 	}
+}
+
+// predictionPanel is one panel of predictions: the level of the column
+// of report.panels_by it holds (fixed), its label (street_type =
+// residential) and the level alone.
+type predictionPanel struct {
+	fixed        map[string]string
+	label, level string
+}
+
+// predictionPanels gives the column of report.panels_by and a panel per
+// level of it, or "" and one panel holding nothing when the plan asks
+// for no panels (or names no column of the predictors).
+func predictionPanels(r *runner.Result, or *runner.OutcomeResult) (string, []predictionPanel) {
+	by := r.Plan.Report.PanelsBy
+	if by == "" || or.Design == nil || or.Design.Source(by) < 0 {
+		return "", []predictionPanel{{}}
+	}
+	levels, _ := or.Design.Coded(or.Design.Source(by))
+	out := make([]predictionPanel, len(levels))
+	for i, l := range levels {
+		out[i] = predictionPanel{fixed: map[string]string{by: l}, label: fmt.Sprintf("%s = %s", by, l), level: l}
+	}
+	return by, out
 }
 
 // writePredictionPanel writes the predictions with the categorical
@@ -105,6 +129,22 @@ func writePredictionPanel(d *doc, r *runner.Result, or *runner.OutcomeResult, fi
 	d.charts(fmt.Sprintf("Charts in report.html: predicted probability of each category against %s.", mdCode(pf.focus)), cs...)
 }
 
+// heldWords says where a panel's predictions hold, after sep: the
+// panel's label (street_type = residential), then where the other
+// predictors are held; "" when nothing is held.
+func heldWords(pf *profile, label, sep string) string {
+	var parts []string
+	for _, p := range []string{label, pf.HeldShort()} {
+		if p != "" {
+			parts = append(parts, p)
+		}
+	}
+	if len(parts) == 0 {
+		return ""
+	}
+	return sep + strings.Join(parts, ", ")
+}
+
 var predictionGrid = opts.Grid{Left: "6%", Right: "8%", Top: "70", Bottom: "70"}
 
 // predictionChart draws the predicted probabilities against the focus
@@ -124,15 +164,11 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 		}
 	}
 	title := "Predicted probabilities by " + pf.focus
-	sub := or.Chosen.ID + "; other predictors at their means"
 	if label != "" {
 		title += " (" + label + ")"
-		sub = or.Chosen.ID + "; " + label + ", other predictors at their means"
 	}
-	caption := fmt.Sprintf("Predicted probability of each category of %s under %s as %s varies, other predictors at their means", or.Outcome.Column, or.Chosen.ID, pf.focus)
-	if label != "" {
-		caption = fmt.Sprintf("Predicted probability of each category of %s under %s as %s varies, with %s, other predictors at their means", or.Outcome.Column, or.Chosen.ID, pf.focus, label)
-	}
+	sub := or.Chosen.ID + heldWords(pf, label, "; ")
+	caption := fmt.Sprintf("Predicted probability of each category of %s under %s as %s varies%s", or.Outcome.Column, or.Chosen.ID, pf.focus, heldWords(pf, label, ", with "))
 	band := pct(level) + " pointwise intervals (delta method on the log-odds scale of each probability)"
 	if pf.binary {
 		caption += "; each bar is the whole distribution at one value, split by category, lightest the lowest category."
@@ -233,11 +269,10 @@ func cumulativeChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 		return nil, err
 	}
 	title := "Cumulative probabilities by " + pf.focus
-	sub := or.Chosen.ID + "; other predictors at their means"
 	if label != "" {
 		title += " (" + label + ")"
-		sub = or.Chosen.ID + "; " + label
 	}
+	sub := or.Chosen.ID + heldWords(pf, label, "; ")
 	caption := fmt.Sprintf("The category probabilities of %s stacked, lowest category at the bottom: the upper edge of each layer is the cumulative probability P(%s <= category) as %s varies.", or.Outcome.Column, or.Outcome.Column, pf.focus)
 	J := len(res.Categories)
 	l := charts.NewLine()

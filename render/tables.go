@@ -371,22 +371,9 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		}
 		add("level-pairs", about, []string{"predictor", "kind", "change", "category", "boundary", "estimate", "std_error", refStat(or.Chosen.Result), "p", "adjusted_p", "adjustment", "low_" + lv, "high_" + lv, "df"}, levelPairsCSV(or))
 	}
-	// Predicted probabilities over the focus predictor.
-	if pf, err := newProfile(or, focusName(r), nil); err == nil {
-		xs := pf.grid(chartPoints)
-		if pred, err := pf.predict(or.Chosen.Result, xs); err == nil {
-			_, z := chosenConfidence(r, or)
-			rows = nil
-			for i, x := range xs {
-				for j := 0; j < pred.J; j++ {
-					p, se := pred.Prob[i*pred.J+j], pred.SE[i*pred.J+j]
-					lo, hi := fit.ProbInterval(p, se, z)
-					rows = append(rows, []string{pf.Label(x), or.Data.Categories[j], csvNum(p), csvNum(se), csvNum(lo), csvNum(hi)})
-				}
-			}
-			add("predicted", fmt.Sprintf("predicted probabilities of the chosen model over %s (other predictors at their means) with delta-method standard errors and %s%% intervals made on the log-odds scale of the probability (inside 0 and 1; empty for a negative probability)", pf.focus, lv),
-				[]string{pf.focus, "category", "probability", "std_error", "low_" + lv, "high_" + lv}, rows)
-		}
+	// Predicted probabilities over the focus predictor, every panel.
+	if kind, about, head, rows, ok := predictedCSV(r, or, lv); ok {
+		add(kind, about, head, rows)
 	}
 	// The calibration table.
 	if lz := or.Lipsitz; lz != nil && lz.Table != nil {
@@ -411,6 +398,51 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		add("patterns", "observed and expected counts of each category by covariate pattern of the categorical predictors and half of predicted score (Pulkstenis-Robinson tests)", []string{"pattern", "half", "n", "category", "observed", "expected"}, rows)
 	}
 	return out
+}
+
+// predictedCSV is the table of predicted probabilities over the focus
+// predictor at chartPoints values, one block of rows per panel of
+// report.panels_by (its column first, naming the panel's level), as the
+// report's panels show them; ok is false when no prediction is made.
+func predictedCSV(r *runner.Result, or *runner.OutcomeResult, lv string) (kind, about string, head []string, rows [][]string, ok bool) {
+	by, panels := predictionPanels(r, or)
+	_, z := chosenConfidence(r, or)
+	var focus, held string
+	for _, p := range panels {
+		pf, err := newProfile(or, focusName(r), p.fixed)
+		if err != nil {
+			return "", "", nil, nil, false
+		}
+		xs := pf.grid(chartPoints)
+		pred, err := pf.predict(or.Chosen.Result, xs)
+		if err != nil {
+			return "", "", nil, nil, false
+		}
+		focus, held = pf.focus, pf.HeldShort()
+		for i, x := range xs {
+			for j := 0; j < pred.J; j++ {
+				pr, se := pred.Prob[i*pred.J+j], pred.SE[i*pred.J+j]
+				lo, hi := fit.ProbInterval(pr, se, z)
+				row := []string{pf.Label(x), or.Data.Categories[j], csvNum(pr), csvNum(se), csvNum(lo), csvNum(hi)}
+				if by != "" {
+					row = append([]string{p.level}, row...)
+				}
+				rows = append(rows, row)
+			}
+		}
+	}
+	head = []string{focus, "category", "probability", "std_error", "low_" + lv, "high_" + lv}
+	where := ""
+	if held != "" {
+		where = " (" + held + ")"
+	}
+	about = fmt.Sprintf("predicted probabilities of the chosen model over %s%s", focus, where)
+	if by != "" {
+		head = append([]string{by}, head...)
+		about = fmt.Sprintf("predicted probabilities of the chosen model over %s, one panel per level of %s (report.panels_by; column %s: the level it is held at)%s", focus, by, by, where)
+	}
+	about += fmt.Sprintf(" with delta-method standard errors and %s%% intervals made on the log-odds scale of the probability (inside 0 and 1; empty for a negative probability)", lv)
+	return "predicted", about, head, rows, true
 }
 
 // writeFilesSection lists the files of the run in the report.

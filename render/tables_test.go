@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/csv"
 	"math"
+	"os"
 	"path/filepath"
 	"regexp"
 	"strconv"
@@ -150,4 +151,72 @@ inference: {marginal_effects: [average, means]}
 	if strings.Contains(orCSV, "age_s") || strings.Contains(md, "| age_s.1 | column") {
 		t.Errorf("a spline column has an odds ratio:\n%s", orCSV)
 	}
+}
+
+// goldenWith is the golden plan with its data file by absolute path and
+// extra report keys, for a test that renders a variant of it.
+func goldenWith(t *testing.T, report string) string {
+	t.Helper()
+	b, err := os.ReadFile(goldenPlan)
+	if err != nil {
+		t.Fatal(err)
+	}
+	data, err := filepath.Abs(filepath.Join("testdata", "data", "small.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	src := strings.Replace(string(b), "file: data/small.csv", "file: "+data, 1)
+	return strings.Replace(src, "report:\n", "report:\n"+report, 1)
+}
+
+// TestPredictedCSVEveryPanel: with report.panels_by the CSV of predicted
+// probabilities holds every panel, its first column naming the panel's
+// level, each panel's first values (the smallest age) equal to those of
+// the report's table of that panel, and its description says where the
+// other predictors are held (categorical ones at their reference level,
+// not at a mean).
+func TestPredictedCSVEveryPanel(t *testing.T) {
+	files := renderSource(t, t.TempDir(), goldenWith(t, "  panels_by: street_type\n"), 1)
+	recs, err := csv.NewReader(bytes.NewReader(files["table-predicted-safety.csv"])).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := strings.Join(recs[0], ","); got != "street_type,age,category,probability,std_error,low_90,high_90" {
+		t.Fatalf("header %s", got)
+	}
+	md := string(files["report.md"])
+	perPanel := map[string]int{}
+	first := map[string][]string{}
+	for _, r := range recs[1:] {
+		perPanel[r[0]]++
+		if perPanel[r[0]] <= 5 {
+			p, _ := strconv.ParseFloat(r[3], 64)
+			first[r[0]] = append(first[r[0]], strconv.FormatFloat(p, 'f', 4, 64))
+		}
+	}
+	for _, l := range []string{"residential", "through_road", "cul_de_sac"} {
+		if perPanel[l] != chartPoints*5 {
+			t.Errorf("panel %s: %d rows, want %d", l, perPanel[l], chartPoints*5)
+		}
+		// The report's panel: its heading, then the table whose first
+		// row is the smallest age.
+		i := strings.Index(md, "#### street_type = "+l)
+		if i < 0 {
+			t.Errorf("report.md has no panel %s", l)
+			continue
+		}
+		row := regexp.MustCompile(`\n\| -?[0-9.]+ \| ([^\n]*)`).FindStringSubmatch(md[i:])
+		for j, p := range first[l] {
+			if row == nil || !strings.Contains(strings.Split(row[1], "|")[j], p+" (") {
+				t.Errorf("panel %s, category %d: CSV %s, report's row %q", l, j+1, p, row)
+			}
+		}
+	}
+	hasAll(t, "report.md", md, "one panel per level of street_type (report.panels_by; column street_type: the level it is held at) (other predictors at their means) with")
+	// Without panels the categorical predictor is at its reference level,
+	// which the description and the charts' captions say.
+	plain := string(renderSource(t, t.TempDir(), goldenWith(t, ""), 1)["report.md"])
+	hasAll(t, "report.md without panels", plain,
+		"predicted probabilities of the chosen model over age (other predictors at their means, categorical ones at their reference level) with",
+		"as age varies, with other predictors at their means, categorical ones at their reference level;")
 }

@@ -3,6 +3,7 @@ package runner
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"ordplan/render/numfmt"
@@ -25,6 +26,7 @@ type Profile struct {
 	or          *OutcomeResult
 	s           int       // the focus column
 	base        []float64 // the raw row others are held at
+	fixed       []int     // the categorical columns held at a level the caller chose
 	offset      float64
 	hasOff      bool
 }
@@ -53,6 +55,7 @@ func (or *OutcomeResult) NewProfile(focus string, fixed map[string]string) (*Pro
 			return nil, fmt.Errorf("%q is not a level of the categorical column %q", level, col)
 		}
 		pf.base[c] = float64(dz.Level(c, level))
+		pf.fixed = append(pf.fixed, c)
 	}
 	if pf.hasOff {
 		pf.offset = weightedMean(or.Data.Offset, or.Data.Weights)
@@ -162,6 +165,32 @@ func (pf *Profile) HeldAt() string {
 		s += ", means weighted by the frequency weights"
 	}
 	return s
+}
+
+// HeldShort says in a few words, for a caption or a file's description,
+// where the other columns are held: numeric ones at their means,
+// categorical ones not fixed by the caller at their reference level
+// ("" when there is no other column).
+func (pf *Profile) HeldShort() string {
+	numeric, categorical := false, false
+	for s, src := range pf.or.Design.Sources {
+		switch {
+		case s == pf.s || slices.Contains(pf.fixed, s):
+		case src.Cat != nil:
+			categorical = true
+		default:
+			numeric = true
+		}
+	}
+	switch {
+	case numeric && categorical:
+		return "other predictors at their means, categorical ones at their reference level"
+	case numeric:
+		return "other predictors at their means"
+	case categorical:
+		return "other predictors, all categorical, at their reference level"
+	}
+	return ""
 }
 
 func (pf *Profile) hasCategorical() bool {
