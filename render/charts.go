@@ -186,4 +186,5 @@ const (
 	colorEstimate = "#4269d0"
 	colorParallel = "#ff725c"
 	colorChosen   = "#3ca951"
+	colorMark     = "#6b6b6b" // legend entries of a mark alone, not of a series
 )

@@ -44,6 +44,11 @@ type figSeries struct {
 	width  float64 // points; 0: 1.5
 	legend bool    // list in the legend
 	bars   bool    // the band as bars (one per x) instead of an area
+	// shape of the points: "" a filled circle, "diamond" a larger filled
+	// diamond, "ring" a hollow circle.
+	shape string
+	// legendOnly: an entry of the legend alone (its mark, or line), no data.
+	legendOnly bool
 }
 
 func newFigure(title, xLabel, yLabel string) *figure {
@@ -256,12 +261,15 @@ func (f *figure) plot() (*plot.Plot, *plot.Legend, error) {
 				thumbs = append(thumbs, poly)
 			}
 		}
-		if s.ys != nil {
+		if s.ys != nil || s.legendOnly {
 			var pts plotter.XYs
-			for i := range xs {
+			for i := range s.ys {
 				if finite(s.ys[i]) {
 					pts = append(pts, plotter.XY{X: xs[i], Y: s.ys[i]})
 				}
+			}
+			if s.legendOnly {
+				pts = plotter.XYs{{}} // a thumbnail's mark, not drawn
 			}
 			if len(pts) == 0 {
 				continue
@@ -281,7 +289,9 @@ func (f *figure) plot() (*plot.Plot, *plot.Legend, error) {
 				if s.dashed {
 					l.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
 				}
-				p.Add(l)
+				if !s.legendOnly {
+					p.Add(l)
+				}
 				thumbs = append(thumbs, l)
 			}
 			if s.points {
@@ -292,7 +302,16 @@ func (f *figure) plot() (*plot.Plot, *plot.Legend, error) {
 				sc.GlyphStyle.Color = col
 				sc.GlyphStyle.Shape = draw.CircleGlyph{}
 				sc.GlyphStyle.Radius = vg.Points(2.5)
-				p.Add(sc)
+				switch s.shape {
+				case "diamond":
+					sc.GlyphStyle.Shape = diamondGlyph{}
+					sc.GlyphStyle.Radius = vg.Points(5)
+				case "ring":
+					sc.GlyphStyle.Shape = draw.RingGlyph{}
+				}
+				if !s.legendOnly {
+					p.Add(sc)
+				}
 				thumbs = append(thumbs, sc)
 			}
 		}
@@ -313,6 +332,15 @@ func (f *figure) plot() (*plot.Plot, *plot.Legend, error) {
 		leg.Add(fitWidth(e.name, float64(figLegendMax), measured(leg.TextStyle.Width)), e.thumbs...)
 	}
 	return p, &leg, nil
+}
+
+// diamondGlyph is a filled diamond, a square turned 45 degrees, its
+// corners at the glyph's radius from the point.
+type diamondGlyph struct{}
+
+func (diamondGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	r := sty.Radius
+	c.FillPolygon(sty.Color, []vg.Point{{X: pt.X, Y: pt.Y + r}, {X: pt.X + r, Y: pt.Y}, {X: pt.X, Y: pt.Y - r}, {X: pt.X - r, Y: pt.Y}})
 }
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }

@@ -1,6 +1,10 @@
 package render
 
 import (
+	"os"
+	"path/filepath"
+	"regexp"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/plot/vg"
@@ -64,4 +68,71 @@ func TestLegendsClearOfData(t *testing.T) {
 
 func overlaps(a, b vg.Rectangle) bool {
 	return a.Min.X < b.Max.X && b.Min.X < a.Max.X && a.Min.Y < b.Max.Y && b.Min.Y < a.Max.Y
+}
+
+// TestCriteriaMarks: in the chart of the information criteria the chosen
+// model is a large diamond and a model a rule rejected a hollow circle,
+// in report.html's chart (symbols, and legend entries of the marks) and
+// in the static figure (a filled four-cornered path and rings, and the
+// same legend entries), as the caption says.
+func TestCriteriaMarks(t *testing.T) {
+	data, err := filepath.Abs(filepath.Join("testdata", "data", "small.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	src := `version: 1
+title: marks
+data: {file: ` + data + `}
+outcomes: [{column: safety, categories: [very_unsafe, unsafe, neutral, safe, very_safe]}]
+predictors: [pilot, female, cyclist]
+models: {approaches: [cumulative], effects: [parallel, partial, nonparallel], links: [logit], partial: {free: [pilot]}}
+tests: {parallel_lines: []}
+rules:
+  - reject_if_sparse: {per_parameter: 20}
+  - choose: {by: bic}
+`
+	path := filepath.Join(t.TempDir(), "p.yaml")
+	if err := os.WriteFile(path, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	res := runPlan(t, path, 1)
+	or := res.Outcomes[0]
+	verdicts := map[string]string{}
+	for _, f := range or.Fits {
+		verdicts[f.ID] = f.Verdict
+	}
+	if verdicts["cumulative/nonparallel/logit"] != "rejected" || or.Chosen == nil {
+		t.Fatalf("verdicts %v: the test needs a rejected model and a chosen one", verdicts)
+	}
+	c := criteriaChart(&doc{}, or, false)
+	hasAll(t, "caption", c.caption, "the chosen model is the large diamond.", "Hollow circles are models a decision rule rejected")
+	hasAll(t, "chart option", c.option, `"symbol":"diamond"`, `"symbol":"emptyCircle"`, `"name":"chosen model"`, `"name":"rejected by a rule"`)
+	svg, err := c.static.svg()
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := string(svg)
+	hasAll(t, "figure", s, ">chosen model<", ">rejected by a rule<")
+	// The diamond: a filled path of four corners (the gonum canvas writes
+	// one M and three L before closing it); rings: stroked circles.
+	if !regexp.MustCompile(`<path d="M[-0-9.]+,[-0-9.]+L[-0-9.]+,[-0-9.]+L[-0-9.]+,[-0-9.]+L[-0-9.]+,[-0-9.]+Z" style="fill:#`).MatchString(s) {
+		t.Errorf("figure has no filled diamond")
+	}
+	// Two rings per rejected model drawn (AIC and BIC) and one in the
+	// legend: circles stroked, not filled.
+	rejected := 0
+	for _, v := range verdicts {
+		if v == "rejected" {
+			rejected++
+		}
+	}
+	rings := 0
+	for _, m := range regexp.MustCompile(`<path d="M[^"]*A[^"]*"[^>]*>`).FindAllString(s, -1) {
+		if !strings.Contains(m, "fill:#") {
+			rings++
+		}
+	}
+	if rings != 2*rejected+1 {
+		t.Errorf("figure has %d rings, want %d (%d models rejected)", rings, 2*rejected+1, rejected)
+	}
 }
