@@ -77,10 +77,15 @@ func TestImputedReport(t *testing.T) {
 		// Goodness of fit: each set's Lipsitz test pooled by D2, said to
 		// be approximate, with its source.
 		"On imputed data (4 sets): each imputed set's rows are grouped by that set's own fitted scores",
-		// Here the four sets' statistics disagree more than D2 allows: no
-		// pooled test, with the reason (not F = 0 with p = 1).
-		"Lipsitz test not computed: the D2 statistic is negative: the 4 imputed sets' statistics (from ",
+		// Here the four sets' statistics disagree more than D2 allows: D2
+		// is set to 0 (p = 1), with the caution that this p-value shows the
+		// disagreement, not a good fit, in the report and the Methods draft
+		// (which names the Lipsitz test, since it was computed).
+		"(approximate): F(9, ",
+		") = 0.000 (pooled, D2), p = 1.0000. Caution: the D2 statistic came out negative and was set to 0 (p = 1): the 4 imputed sets' statistics (from ",
+		"The fit of the chosen model was checked with the Lipsitz test [",
 		"combined by the D2 rule [",
+		"For the Lipsitz test the D2 statistic came out negative and was set to 0 (p = 1), as is usual; that p-value says that the imputed sets' statistics disagree more than D2 allows, not that the model fits.",
 		"Li, K.H., Meng, X.L., Raghunathan, T.E. & Rubin, D.B. (1991). Significance levels from repeated p-values with multiply-imputed data.",
 		// The missing values are those of the original data file, named
 		// as such (it named the stacked file of the imputed sets).

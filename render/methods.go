@@ -228,18 +228,10 @@ func writeMethods(d *doc, r *runner.Result) {
 			}
 		} else {
 			s = append(s, fmt.Sprintf("Each model was compared with the model with thresholds only by a likelihood-ratio test and pseudo-R² measures (McFadden %s, Cox-Snell and Nagelkerke %s, McKelvey-Zavoina for cumulative models with parallel effects %s).", c.cite("mcfadden"), c.cite("nagelkerke"), c.cite("mckelvey")))
-			if or.Lipsitz != nil {
-				s = append(s, fmt.Sprintf("The fit of the chosen model was checked with the Lipsitz test %s and by comparing observed and expected counts in groups of predicted score.", c.cite("lipsitz")))
-			}
-			if ps := or.PatternSplit; ps != nil && ps.PatternSplit != nil {
-				s = append(s, fmt.Sprintf("Its fit by covariate pattern of the categorical predictors (%s) was checked with the Pulkstenis-Robinson Pearson and deviance tests %s.", strings.Join(ps.Predictors, ", "), c.cite("pulkstenis")))
-			}
+			s = append(s, goodnessOfFitMethods(or, c)...)
 		}
 		if p.Data.Offset != "" {
 			s = append(s, fmt.Sprintf("The model with thresholds only keeps the offset %s, so the comparisons with it count what the predictors add to the offset; McKelvey-Zavoina uses the variance of the predictors' part of the linear predictor, without the offset.", mdCode(p.Data.Offset)))
-		}
-		if or.GOFPooling != nil && or.Lipsitz != nil && !sampling {
-			s = append(s, fmt.Sprintf("On the imputed data these goodness-of-fit tests were computed on each imputed set with that set's fit of the chosen model, and their chi-square statistics were combined by the D2 rule %s, an approximation that is less powerful than the pooled tests of estimates or likelihoods.", c.cite("d2")))
 		}
 		switch {
 		case len(or.TermTests) > 0:
@@ -639,6 +631,59 @@ func onlyCumulativeLogit(approaches []fit.Comparison, links []fit.Link) bool {
 }
 
 // termTestsMethods says how each term of the chosen model was tested, and
+// goodnessOfFitMethods names the checks of the chosen model's fit that were
+// made (without sampling weights): the Lipsitz test only when it was
+// computed, the table of observed and expected counts whenever it was made,
+// the Pulkstenis-Robinson tests that were computed; on imputed data how
+// they were pooled, and a pooled statistic that D2 set to 0.
+func goodnessOfFitMethods(or *runner.OutcomeResult, c *citer) []string {
+	lz := or.Lipsitz
+	if lz == nil || lz.Table == nil {
+		return nil
+	}
+	var s, names []string
+	var pooled []fit.Test
+	if lz.Test.OK {
+		s = append(s, fmt.Sprintf("The fit of the chosen model was checked with the Lipsitz test %s and by comparing observed and expected counts in groups of predicted score.", c.cite("lipsitz")))
+		names, pooled = append(names, "Lipsitz"), append(pooled, lz.Test)
+	} else {
+		s = append(s, "The fit of the chosen model was checked by comparing observed and expected counts in groups of predicted score (the Lipsitz test could not be computed; the report gives the reason).")
+	}
+	if ps := or.PatternSplit; ps != nil && ps.PatternSplit != nil {
+		var done []string
+		for _, t := range []struct {
+			name string
+			test fit.Test
+		}{{"Pearson", ps.PatternSplit.Pearson}, {"deviance", ps.PatternSplit.Deviance}} {
+			if t.test.OK {
+				done = append(done, t.name)
+				names, pooled = append(names, "Pulkstenis-Robinson "+t.name), append(pooled, t.test)
+			}
+		}
+		if len(done) > 0 {
+			s = append(s, fmt.Sprintf("Its fit by covariate pattern of the categorical predictors (%s) was checked with the Pulkstenis-Robinson %s %s %s.", strings.Join(ps.Predictors, ", "), strings.Join(done, " and "), "test"+plural(len(done)), c.cite("pulkstenis")))
+		}
+	}
+	if or.GOFPooling == nil || len(pooled) == 0 {
+		return s
+	}
+	these := "these goodness-of-fit tests were"
+	if len(pooled) == 1 {
+		these = "this goodness-of-fit test was"
+	}
+	s = append(s, fmt.Sprintf("On the imputed data %s computed on each imputed set with that set's fit of the chosen model, and the chi-square statistics were combined by the D2 rule %s, an approximation that is less powerful than the pooled tests of estimates or likelihoods.", these, c.cite("d2")))
+	var zero []string
+	for i, t := range pooled {
+		if t.Warning != "" {
+			zero = append(zero, names[i])
+		}
+	}
+	if len(zero) > 0 {
+		s = append(s, fmt.Sprintf("For the %s test%s the D2 statistic came out negative and was set to 0 (p = 1), as is usual; that p-value says that the imputed sets' statistics disagree more than D2 allows, not that the model fits.", strings.Join(zero, " and "), plural(len(zero))))
+	}
+	return s
+}
+
 // what the tests assume.
 func termTestsMethods(or *runner.OutcomeResult, inf plan.Inference, sampling bool, c *citer) string {
 	var s []string

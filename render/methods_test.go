@@ -164,3 +164,34 @@ func TestMetDropReasonsCountApart(t *testing.T) {
 		t.Errorf("counts given on imputed data")
 	}
 }
+
+// The Methods draft names only the goodness-of-fit checks that were made:
+// a Lipsitz test that could not be computed is not said to have checked
+// the fit (the table of counts still was), a Pulkstenis-Robinson test only
+// when computed, and the D2 pooling only of tests it pooled.
+func TestGoodnessOfFitMethodsOnlyChecksMade(t *testing.T) {
+	table := &fit.ScoreGroups{Groups: 10}
+	notMade := fit.Test{Name: "lipsitz", Reason: "in imputed set 2: the refit did not converge"}
+	made := fit.Test{Name: "pulkstenis_robinson_pearson", OK: true, Chi2: 5, DF: 4, P: 0.3, Pooled: "D2"}
+	or := &runner.OutcomeResult{
+		Lipsitz:      &fit.Lipsitz{Test: notMade, Table: table},
+		PatternSplit: &runner.PatternSplitRecord{Predictors: []string{"arm"}, PatternSplit: &fit.PatternSplit{Pearson: made, Deviance: fit.Test{Name: "pulkstenis_robinson_deviance", Reason: "a cell has no expected count"}}},
+		GOFPooling:   &runner.GOFPooling{Method: "D2"},
+	}
+	got := strings.Join(goodnessOfFitMethods(or, &citer{}), " ")
+	want := "The fit of the chosen model was checked by comparing observed and expected counts in groups of predicted score (the Lipsitz test could not be computed; the report gives the reason). " +
+		"Its fit by covariate pattern of the categorical predictors (arm) was checked with the Pulkstenis-Robinson Pearson test [1]. " +
+		"On the imputed data this goodness-of-fit test was computed on each imputed set with that set's fit of the chosen model, and the chi-square statistics were combined by the D2 rule [2], an approximation that is less powerful than the pooled tests of estimates or likelihoods."
+	if got != want {
+		t.Errorf("methods:\n%s\nwant\n%s", got, want)
+	}
+	// No test made: no sentence on D2; no table: no sentence at all.
+	or.PatternSplit = nil
+	if got := strings.Join(goodnessOfFitMethods(or, &citer{}), " "); strings.Contains(got, "D2") || strings.Contains(got, "Lipsitz test [") {
+		t.Errorf("no test made: %s", got)
+	}
+	or.Lipsitz.Table = nil
+	if got := goodnessOfFitMethods(or, &citer{}); got != nil {
+		t.Errorf("nothing made: %q", got)
+	}
+}

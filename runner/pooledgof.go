@@ -12,11 +12,8 @@ import (
 // computed on imputed data: on every set with that set's fit and rows,
 // each set's chi-square statistic, pooled by Method.
 type GOFPooling struct {
-	Method   string    `json:"method"` // "D2"; "none" under sampling weights (no test to pool)
-	Note     string    `json:"note"`
-	Lipsitz  []float64 `json:"lipsitz_chi2_by_set,omitempty"`
-	Pearson  []float64 `json:"pearson_chi2_by_set,omitempty"`
-	Deviance []float64 `json:"deviance_chi2_by_set,omitempty"`
+	Method string `json:"method"` // "D2"; "none" under sampling weights (no test to pool)
+	Note   string `json:"note"`
 }
 
 // d2GOFNote is what the report and decisions.json say of the pooled
@@ -51,8 +48,8 @@ func runPooledGoodnessOfFit(a *Analysis, or *OutcomeResult) {
 	if a.Errors.Sampling {
 		rec = &GOFPooling{Method: "none", Note: samplingGOFNote}
 	}
-	or.Lipsitz = pooledLipsitz(lzs, rec)
-	or.PatternSplit = pooledPatternSplit(pss, rec)
+	or.Lipsitz = pooledLipsitz(lzs)
+	or.PatternSplit = pooledPatternSplit(pss)
 	or.GOFPooling = rec
 }
 
@@ -77,24 +74,19 @@ func setReason(per []fit.Test) string {
 }
 
 // pooledGOFTest pools one goodness-of-fit test of every set by D2
-// (pooledChi2), keeping a reason the sets share as it is; by is each
-// set's statistic.
-func pooledGOFTest(per []fit.Test) (fit.Test, []float64) {
+// (pooledChi2, which keeps each set's statistic in the test), keeping a
+// reason the sets share as it is.
+func pooledGOFTest(per []fit.Test) fit.Test {
 	if why := setReason(per); why != "" {
-		return fit.Test{Name: per[0].Name, Reason: why}, nil
+		return fit.Test{Name: per[0].Name, Reason: why}
 	}
-	by := make([]float64, len(per))
-	for k, t := range per {
-		by[k] = t.Chi2
-	}
-	t := pooledChi2(per[0].Name, per)
-	return t, by
+	return pooledChi2(per[0].Name, per)
 }
 
 // pooledLipsitz pools the Lipsitz tests of the sets; the calibration
 // table is the mean over the sets of each set's table (the groups, formed
 // by each set's scores, must be as many in every set).
-func pooledLipsitz(lzs []*fit.Lipsitz, rec *GOFPooling) *fit.Lipsitz {
+func pooledLipsitz(lzs []*fit.Lipsitz) *fit.Lipsitz {
 	for k, lz := range lzs {
 		if lz.Table == nil {
 			return &fit.Lipsitz{Test: fit.Test{Name: lz.Test.Name, Reason: fmt.Sprintf("in imputed set %d: %s", k+1, lz.Test.Reason)}}
@@ -108,7 +100,7 @@ func pooledLipsitz(lzs []*fit.Lipsitz, rec *GOFPooling) *fit.Lipsitz {
 		per[k] = lz.Test
 	}
 	out := &fit.Lipsitz{}
-	out.Test, rec.Lipsitz = pooledGOFTest(per)
+	out.Test = pooledGOFTest(per)
 	t0 := lzs[0].Table
 	m := float64(len(lzs))
 	t := &fit.ScoreGroups{Groups: t0.Groups, Categories: t0.Categories,
@@ -142,7 +134,7 @@ func zeros(rows, cols int) [][]float64 {
 // pooledPatternSplit pools the Pulkstenis-Robinson tests of the sets by
 // D2; the table is the mean over the sets of each set's counts, so the
 // groups (patterns and halves) must be the same in every set.
-func pooledPatternSplit(pss []*PatternSplitRecord, rec *GOFPooling) *PatternSplitRecord {
+func pooledPatternSplit(pss []*PatternSplitRecord) *PatternSplitRecord {
 	first := pss[0]
 	if first == nil || first.PatternSplit == nil {
 		return first // no design, no categorical predictor, or not computed
@@ -185,7 +177,7 @@ func pooledPatternSplit(pss []*PatternSplitRecord, rec *GOFPooling) *PatternSpli
 			f.MinExpected = math.Min(f.MinExpected, e)
 		}
 	}
-	f.Pearson, rec.Pearson = pooledGOFTest(pearson)
-	f.Deviance, rec.Deviance = pooledGOFTest(deviance)
+	f.Pearson = pooledGOFTest(pearson)
+	f.Deviance = pooledGOFTest(deviance)
 	return &PatternSplitRecord{Predictors: first.Predictors, PatternSplit: &f}
 }

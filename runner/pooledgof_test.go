@@ -2,6 +2,7 @@ package runner
 
 import (
 	"math"
+	"slices"
 	"strings"
 	"testing"
 
@@ -33,10 +34,13 @@ func TestPooledGoodnessOfFit(t *testing.T) {
 	if rec == nil || rec.Method != "D2" || or.Lipsitz == nil || or.PatternSplit == nil || or.PatternSplit.PatternSplit == nil {
 		t.Fatalf("pooling %+v, lipsitz %+v, pattern split %+v", rec, or.Lipsitz, or.PatternSplit)
 	}
-	if len(rec.Lipsitz) != im.M || len(rec.Pearson) != im.M || len(rec.Deviance) != im.M {
-		t.Fatalf("statistics by set: %v %v %v", rec.Lipsitz, rec.Pearson, rec.Deviance)
-	}
+	// Each pooled test keeps its sets' statistics (decisions.json's
+	// chi2_by_set).
 	ps := or.PatternSplit.PatternSplit
+	byLz, byPe, byDe := or.Lipsitz.Test.BySet, ps.Pearson.BySet, ps.Deviance.BySet
+	if len(byLz) != im.M || len(byPe) != im.M || len(byDe) != im.M {
+		t.Fatalf("statistics by set: %v %v %v", byLz, byPe, byDe)
+	}
 	var lzDF, prDF int
 	for k := range im.Sets {
 		r, err := fit.Fit(im.Sets[k], or.Chosen.Result.Model, fit.Options{})
@@ -54,7 +58,7 @@ func TestPooledGoodnessOfFit(t *testing.T) {
 		for _, c := range []struct {
 			name      string
 			got, want float64
-		}{{"Lipsitz", rec.Lipsitz[k], lz.Test.Chi2}, {"Pearson", rec.Pearson[k], pr.Pearson.Chi2}, {"deviance", rec.Deviance[k], pr.Deviance.Chi2}} {
+		}{{"Lipsitz", byLz[k], lz.Test.Chi2}, {"Pearson", byPe[k], pr.Pearson.Chi2}, {"deviance", byDe[k], pr.Deviance.Chi2}} {
 			if math.Abs(c.got-c.want) > 1e-6*math.Max(1, c.want) {
 				t.Errorf("set %d: %s statistic %.10g, its own fit gives %.10g", k+1, c.name, c.got, c.want)
 			}
@@ -66,7 +70,7 @@ func TestPooledGoodnessOfFit(t *testing.T) {
 	for _, c := range []struct {
 		name string
 		by   []float64
-	}{{"lipsitz", rec.Lipsitz}, {"pearson", rec.Pearson}, {"deviance", rec.Deviance}} {
+	}{{"lipsitz", byLz}, {"pearson", byPe}, {"deviance", byDe}} {
 		want := frozen.Get(t, c.name+"_chi2")
 		for k := range want {
 			if math.Abs(c.by[k]-want[k]) > 1e-6*want[k] {
@@ -74,7 +78,7 @@ func TestPooledGoodnessOfFit(t *testing.T) {
 			}
 		}
 	}
-	if rec.Lipsitz[0] == rec.Lipsitz[1] {
+	if byLz[0] == byLz[1] {
 		t.Error("the sets give the same Lipsitz statistic: the check cannot tell sets apart")
 	}
 	for _, c := range []struct {
@@ -82,22 +86,26 @@ func TestPooledGoodnessOfFit(t *testing.T) {
 		got  fit.Test
 		by   []float64
 		df   int
-	}{{"lipsitz", or.Lipsitz.Test, rec.Lipsitz, lzDF}, {"pulkstenis_robinson_pearson", ps.Pearson, rec.Pearson, prDF}, {"pulkstenis_robinson_deviance", ps.Deviance, rec.Deviance, prDF}} {
+	}{{"lipsitz", or.Lipsitz.Test, byLz, lzDF}, {"pulkstenis_robinson_pearson", ps.Pearson, byPe, prDF}, {"pulkstenis_robinson_deviance", ps.Deviance, byDe, prDF}} {
 		want, err := impute.D2(c.by, c.df)
 		if err != nil {
 			t.Fatal(err)
 		}
 		g := c.got
-		if want.F <= 0 {
-			// A negative D2 gives no test (not 0 with p = 1, which reads as a
-			// perfect fit), with the reason.
-			if g.OK || g.Name != c.name || !strings.HasPrefix(g.Reason, "the D2 statistic is negative: ") {
-				t.Errorf("%s: %+v, want no test with the reason (D2 %+v)", c.name, g, want)
-			}
-			continue
-		}
 		if !g.OK || g.Name != c.name || g.Pooled != "D2" || g.DF != c.df || g.Chi2 != want.F*float64(c.df) || g.P != want.P || g.DF2 != want.DF2 {
 			t.Errorf("%s: %+v, want D2 %+v", c.name, g, want)
+		}
+		if !slices.Equal(g.BySet, c.by) {
+			t.Errorf("%s: statistics by set %v, want %v", c.name, g.BySet, c.by)
+		}
+		// A negative D2 is set to 0 (p = 1), the usual practice, and the
+		// test's warning says that this p-value shows the sets disagree.
+		if want.Warnings != "" {
+			if g.P != 1 || g.Chi2 != 0 || !strings.HasPrefix(g.Warning, "the D2 statistic came out negative and was set to 0 (p = 1): the 4 imputed sets' statistics (from ") || !strings.HasSuffix(g.Warning, "so p = 1 says that the sets disagree, not that the model fits") {
+				t.Errorf("%s: D2 below 0 gives %+v, want 0 with p = 1 and the warning", c.name, g)
+			}
+		} else if g.Warning != "" {
+			t.Errorf("%s: warning %q on a positive D2", c.name, g.Warning)
 		}
 	}
 	// The tables: the means of the sets' counts, so the observations add up
@@ -118,6 +126,45 @@ func TestPooledGoodnessOfFit(t *testing.T) {
 		if math.Abs(n-float64(im.Rows)) > 1e-9 || math.Abs(o-n) > 1e-9 || math.Abs(e-n) > 1e-6 {
 			t.Errorf("%s: N %g, observed %g, expected %g, want %d rows", tab.name, n, o, e, im.Rows)
 		}
+	}
+}
+
+// TestPooledChi2NegativeD2: statistics that vary more between the sets
+// than their size allows (five sets' Lipsitz statistics on 9 df, from a
+// run of clustered imputed data) give a D2 below 0, here
+// (7.8173/9 - 1.5 r)/(1 + r) = -0.0074 with r = 1.2 var(sqrt(d)) = 0.5869 (by
+// hand below), which mitml
+// leaves negative (it computes the formula as it stands): the pooled test
+// is set to 0 with p = 1, as is usual, keeps the sets' statistics, and
+// its warning says that p = 1 shows disagreement, not fit.
+func TestPooledChi2NegativeD2(t *testing.T) {
+	chi := []float64{7.724170720314078, 14.280725339636774, 6.695936285814923, 3.3120164958536407, 7.073863827351715}
+	per := make([]fit.Test, len(chi))
+	for k, x := range chi {
+		per[k] = fit.Test{Name: "lipsitz", OK: true, Chi2: x, DF: 9}
+	}
+	// The formula by hand: mean, variance of the square roots.
+	var dbar, sbar, v float64
+	for _, x := range chi {
+		dbar += x / 5
+		sbar += math.Sqrt(x) / 5
+	}
+	for _, x := range chi {
+		v += (math.Sqrt(x) - sbar) * (math.Sqrt(x) - sbar) / 4
+	}
+	r := 1.2 * v
+	if raw := (dbar/9 - 1.5*r) / (1 + r); raw >= 0 {
+		t.Fatalf("D2 by hand %g is not negative: the case is not checked", raw)
+	}
+	g := pooledChi2("lipsitz", per)
+	want := "the D2 statistic came out negative and was set to 0 (p = 1): the 5 imputed sets' statistics (from 3.31202 to 14.2807 on 9 df) vary more than their size allows, so p = 1 says that the sets disagree, not that the model fits"
+	if !g.OK || g.Chi2 != 0 || g.P != 1 || g.DF != 9 || g.Pooled != "D2" || g.Warning != want || !slices.Equal(g.BySet, chi) {
+		t.Errorf("pooled: %+v", g)
+	}
+	// A set's negative statistic counts as 0 in the statistics kept.
+	per[3].Chi2 = -0.5
+	if g := pooledChi2("lipsitz", per); g.BySet[3] != 0 {
+		t.Errorf("a negative statistic of a set is kept as %g", g.BySet[3])
 	}
 }
 
@@ -199,12 +246,11 @@ func TestPooledGoodnessOfFitNotPooled(t *testing.T) {
 		return &fit.ScoreGroups{Groups: groups, Categories: []string{"1", "2"}, Low: make([]float64, groups), High: make([]float64, groups),
 			Weight: make([]float64, groups), Observed: zeros(groups, 2), Expected: zeros(groups, 2)}
 	}
-	rec := &GOFPooling{}
-	lz := pooledLipsitz([]*fit.Lipsitz{{Test: ok, Table: table(3)}, {Test: ok, Table: table(2)}}, rec)
+	lz := pooledLipsitz([]*fit.Lipsitz{{Test: ok, Table: table(3)}, {Test: ok, Table: table(2)}})
 	if lz.Test.OK || lz.Table != nil || !strings.Contains(lz.Test.Reason, "imputed set 2 has 2 groups of predicted score but set 1 has 3") {
 		t.Errorf("groups differ: %+v", lz)
 	}
-	lz = pooledLipsitz([]*fit.Lipsitz{{Test: why, Table: table(3)}, {Test: why, Table: table(3)}}, rec)
+	lz = pooledLipsitz([]*fit.Lipsitz{{Test: why, Table: table(3)}, {Test: why, Table: table(3)}})
 	if lz.Test.OK || lz.Test.Reason != likelihoodNote || lz.Table == nil {
 		t.Errorf("sampling weights: %+v", lz)
 	}
@@ -213,7 +259,7 @@ func TestPooledGoodnessOfFitNotPooled(t *testing.T) {
 		return &PatternSplitRecord{Predictors: []string{"g"}, PatternSplit: &fit.PatternSplit{Groups: n, Categories: []string{"1", "2"}, Pattern: patterns,
 			Half: make([]string, n), Weight: make([]float64, n), Observed: zeros(n, 2), Expected: zeros(n, 2)}}
 	}
-	ps := pooledPatternSplit([]*PatternSplitRecord{split("g=a", "g=b"), split("g=a", "g=c")}, rec)
+	ps := pooledPatternSplit([]*PatternSplitRecord{split("g=a", "g=b"), split("g=a", "g=c")})
 	if ps.PatternSplit != nil || !strings.Contains(ps.NotComputed, "imputed set 2 differ from those of set 1") {
 		t.Errorf("patterns differ: %+v", ps)
 	}

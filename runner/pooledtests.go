@@ -30,8 +30,10 @@ func (or *OutcomeResult) perSetOf(f *FitEntry) []*FitEntry {
 
 // pooledChi2 pools a chi-square test computed on each imputed set by D2.
 // A negative statistic of a set (possible for approximate likelihood-ratio
-// constructions) counts as 0; a negative D2 gives no test, with the
-// reason (not 0 with p = 1).
+// constructions) counts as 0. A negative D2 is set to 0 (p = 1), as is the
+// usual practice, and the test's warning says so and why: the p-value of 1
+// then tells that the sets disagree, not that the model fits. The sets'
+// statistics are kept in the test (BySet).
 func pooledChi2(name string, per []fit.Test) fit.Test {
 	chi := make([]float64, len(per))
 	for k, t := range per {
@@ -47,14 +49,13 @@ func pooledChi2(name string, per []fit.Test) fit.Test {
 	if err != nil {
 		return fit.Test{Name: name, Reason: err.Error()}
 	}
-	if d.F <= 0 && d.Warnings != "" {
-		// D2 below 0, set to 0 with p = 1, would read as a perfect fit;
-		// it says only that the sets disagree too much for D2.
-		return fit.Test{Name: name, Reason: fmt.Sprintf("the D2 statistic is negative: the %d imputed sets' statistics (from %s to %s on %d df) vary more than their size allows, so D2 cannot pool them",
-			len(chi), numfmt.Num(slices.Min(chi)), numfmt.Num(slices.Max(chi)), per[0].DF)}
-	}
 	t := fTest(0, d, math.NaN(), math.NaN())
 	t.Name = name
+	t.BySet = chi
+	if d.Warnings != "" {
+		t.Warning = fmt.Sprintf("the D2 statistic came out negative and was set to 0 (p = 1): the %d imputed sets' statistics (from %s to %s on %d df) vary more than their size allows, so p = 1 says that the sets disagree, not that the model fits",
+			len(chi), numfmt.Num(slices.Min(chi)), numfmt.Num(slices.Max(chi)), per[0].DF)
+	}
 	return t
 }
 

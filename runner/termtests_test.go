@@ -6,6 +6,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"reflect"
 	"strings"
 	"testing"
 
@@ -462,7 +463,7 @@ func TestTermTestsChosenByPlan(t *testing.T) {
 			if word == "lr" {
 				kept, left, ref = tt.LR, tt.Wald, both.TermTests[i].LR
 			}
-			if kept != ref {
+			if !reflect.DeepEqual(kept, ref) {
 				t.Errorf("%s, %s: %+v, by default %+v", word, tt.Term, kept, ref)
 			}
 			if left.OK || left.Reason != "left out by the plan (inference.term_tests: "+word+")" {

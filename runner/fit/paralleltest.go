@@ -100,6 +100,9 @@ type Test struct {
 	// Warning is what the pooling rule says of a test it computed
 	// (D3: a negative between-imputation part set to 0).
 	Warning string `json:"warning,omitempty"`
+	// BySet holds the imputed sets' own chi-square statistics of a test
+	// pooled by D2 (the only thing it pools), in the order of the sets.
+	BySet []float64 `json:"chi2_by_set,omitempty"`
 	// FRef: a Wald test on a cluster-robust covariance of G clusters (the
 	// clustered sandwich or the delete-one-cluster jackknife; Result.RefDF
 	// = G-1): F = Chi2 (G-q)/((G-1) q), q = DF, is referred to F(DF, DF2),
