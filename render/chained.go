@@ -90,7 +90,7 @@ func imputationMethods(im *runner.ImputedRun, dz *design.Design, cluster string,
 	}
 	ch := im.Chained
 	if ch == nil {
-		return pool()
+		return pool() + " " + marWords + " " + outsideImputationWords
 	}
 	sources := c.cite("rubin", "vanbuuren") // cited first: the text names them first
 	var models []string

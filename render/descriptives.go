@@ -5,6 +5,7 @@ import (
 	"math"
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/data"
@@ -162,6 +163,47 @@ func sharePct(n, of int) string {
 	return numfmt.Fixed(100*float64(n)/float64(of), 1) + "%"
 }
 
+// missingRows counts the complete and the incomplete rows of the rows the
+// missing-value table describes (or.Data.Missing, not nil): on imputed
+// data those of the original data.
+func missingRows(or *runner.OutcomeResult) (complete, incomplete int) {
+	mt := or.Data.Missing
+	complete = or.Data.N
+	if or.Imputed != nil {
+		complete = mt.Rows
+		for _, p := range mt.Patterns {
+			complete -= p.Rows
+		}
+	}
+	return complete, mt.Rows - complete
+}
+
+// incompleteWords says how many rows miss a used column: "Of N rows, n
+// (s%) miss at least one used column". The one wording of the count, in
+// the Data section and in the Methods draft.
+func incompleteWords(or *runner.OutcomeResult) string {
+	mt := or.Data.Missing
+	_, incomplete := missingRows(or)
+	of := fmt.Sprintf("Of %d rows", mt.Rows)
+	if or.AsRead().RowsOutside > 0 {
+		of = fmt.Sprintf("Of the %d rows the subset does not exclude", mt.Rows)
+	}
+	return fmt.Sprintf("%s, %d (%s) miss at least one used column", of, incomplete, sharePct(incomplete, mt.Rows))
+}
+
+// missingByColumnWords lists the used columns with missing values and the
+// rows that miss each, as the table of missing values per used column
+// gives them: "`dose` 132 (18.3%) and `smoker` 55 (7.6%)".
+func missingByColumnWords(mt *data.MissingTable) string {
+	var cols []string
+	for j, c := range mt.Columns {
+		if mt.ByColumn[j] > 0 {
+			cols = append(cols, fmt.Sprintf("%s %d (%s)", mdCode(c), mt.ByColumn[j], sharePct(mt.ByColumn[j], mt.Rows)))
+		}
+	}
+	return words.AndList(cols)
+}
+
 // writeMissing writes the missingness of the used columns: per column,
 // the joint patterns and by outcome category.
 func writeMissing(d *doc, or *runner.OutcomeResult) {
@@ -173,29 +215,18 @@ func writeMissing(d *doc, or *runner.OutcomeResult) {
 		d.p("No used column (%s) has a missing value.", mdText(strings.Join(mt.Columns, ", ")))
 		return
 	}
-	complete := or.Data.N
-	if or.Imputed != nil {
-		complete = mt.Rows
-		for _, p := range mt.Patterns {
-			complete -= p.Rows
-		}
-	}
-	incomplete := mt.Rows - complete
-	of := fmt.Sprintf("Of %d rows", mt.Rows)
-	if or.AsRead().RowsOutside > 0 {
-		of = fmt.Sprintf("Of the %d rows the subset does not exclude", mt.Rows)
-	}
+	complete, incomplete := missingRows(or)
 	if or.Imputed != nil {
 		dropped := ""
 		if obs := or.Observed; obs != nil && obs.Incomplete < incomplete {
 			n := incomplete - obs.Incomplete
 			dropped = fmt.Sprintf("; %d of them miss a column that imputation does not fill (weights, offset, cluster, or a column the subset's conditions read, without which whether the row belongs to the subset is unknown) and were dropped, the %d others were imputed", n, obs.Incomplete)
 		}
-		d.p("Missing values in the columns the analysis uses, in the original data %s. %s, %d (%s) miss at least one used column%s; the analysis uses the %d imputed data sets instead (see Multiple imputation).",
-			mdCode(originalFile(or)), of, incomplete, sharePct(incomplete, mt.Rows), dropped, or.Imputed.M)
+		d.p("Missing values in the columns the analysis uses, in the original data %s. %s%s; the analysis uses the %d imputed data sets instead (see Multiple imputation).",
+			mdCode(originalFile(or)), incompleteWords(or), dropped, or.Imputed.M)
 	} else {
-		d.p("Missing values in the columns the analysis uses. %s, %d (%s) miss at least one used column; they were dropped before any fit, and the %d complete rows (%s) are analysed.",
-			of, incomplete, sharePct(incomplete, mt.Rows), complete, sharePct(complete, mt.Rows))
+		d.p("Missing values in the columns the analysis uses. %s; they were dropped before any fit, and the %d complete rows (%s) are analysed.",
+			incompleteWords(or), complete, sharePct(complete, mt.Rows))
 	}
 	var rows [][]string
 	for j, c := range mt.Columns {
@@ -349,7 +380,32 @@ func writeImputation(d *doc, or *runner.OutcomeResult, sampling bool, cluster st
 		writeChained(d, im.Chained, im.Rows, or.Design, setsFile, cluster)
 		return
 	}
-	d.p("Multiple imputation assumes that the values are missing at random given the variables used to impute them: whether a value is missing may depend on what was observed, not on the missing value itself. The imputation model must include the outcome and every term of these models (their transformations and interactions too); otherwise the pooled effects are biased towards zero. The imputed sets were made outside this run, and their imputation model is not checked here.")
+	d.p("%s The imputation model must include the outcome and every term of these models (their transformations and interactions too); otherwise the pooled effects are biased towards zero. %s", marWords, outsideImputationWords)
+}
+
+// The assumption of an analysis of imputed sets made outside ordplan, and
+// what ordplan does not know of them: the report's section on multiple
+// imputation and the Methods draft say it in these words.
+const (
+	marWords               = "Multiple imputation assumes that the values are missing at random given the variables used to impute them: whether a value is missing may depend on what was observed, not on the missing value itself."
+	outsideImputationWords = "The imputed sets were made outside ordplan, so their imputation model is not known to ordplan and is not checked by it."
+)
+
+// importedMissingMethods is the Methods draft's account of the rows of
+// imputed sets made outside ordplan: the incomplete rows of the original
+// data, in all and by column (when the original data were read), and the
+// rows of each set.
+func importedMissingMethods(or *runner.OutcomeResult, within string) string {
+	held := fmt.Sprintf("Each of the %d imputed data sets held %d rows%s, all used.", or.Imputed.M, or.Imputed.Rows, within)
+	mt := or.Data.Missing
+	if mt == nil {
+		return held
+	}
+	by := ""
+	if w := missingByColumnWords(mt); w != "" {
+		by = ": " + w
+	}
+	return fmt.Sprintf("%s in the original data %s%s. %s", incompleteWords(or), mdCode(originalFile(or)), by, held)
 }
 
 // dfCell writes pooled degrees of freedom for a table: one decimal, or

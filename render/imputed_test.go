@@ -107,6 +107,24 @@ func TestImputedReport(t *testing.T) {
 			}
 		}
 	}
+	// The Methods draft counts the incomplete rows of the original data,
+	// in all and by column, in the words and numbers of the Data section,
+	// and states the missing-at-random assumption and that the sets were
+	// imputed outside ordplan, in the words of the section on imputation.
+	methods := md[strings.Index(md, "## Methods (draft)"):]
+	body := md[:strings.Index(md, "## Methods (draft)")]
+	m := regexp.MustCompile("Of 240 rows, ([0-9]+) \\(([0-9.]+)%\\) miss at least one used column in the original data `orig.csv`: `x2` ([0-9]+) \\(([0-9.]+)%\\)\\. Each of the 4 imputed data sets held 240 rows, all used\\.").FindStringSubmatch(methods)
+	if m == nil {
+		t.Fatalf("the Methods draft does not count the incomplete rows:\n%s", methods[:2000])
+	}
+	hasAll(t, "report.md (body)", body,
+		"Of 240 rows, "+m[1]+" ("+m[2]+"%) miss at least one used column; the analysis uses the 4 imputed data sets instead",
+		"| `x2` | "+m[3]+" | "+m[4]+"% |")
+	for _, w := range []string{marWords, outsideImputationWords} {
+		if strings.Count(methods, w) != 1 || strings.Count(body, w) != 1 {
+			t.Errorf("%q: %d times in the Methods draft, %d in the body; want once each", w, strings.Count(methods, w), strings.Count(body, w))
+		}
+	}
 	if strings.Contains(md, "not computed on imputed data") {
 		t.Error("report.md still says goodness-of-fit tests are not computed on imputed data")
 	}

@@ -105,7 +105,7 @@ func writeMethods(d *doc, r *runner.Result) {
 			if len(p.Subset) > 0 {
 				within = " that met the plan's subset conditions"
 			}
-			s = append(s, fmt.Sprintf("Each of the %d imputed data sets held %d rows%s, all used.", or.Imputed.M, or.Imputed.Rows, within))
+			s = append(s, importedMissingMethods(or, within))
 		case ds.RowsOutside > 0 || ds.RowsUndecided > 0:
 			s = append(s, subsetMethods(p, ds, p.Data.Imputes()))
 		case ds.RowsDropped > 0:
