@@ -47,6 +47,9 @@ type canonPlan struct {
 	Inference   canonInference         `json:"inference"`
 	Dictionary  map[string]any         `json:"dictionary,omitempty"`
 	Assumptions map[string]any         `json:"assumptions,omitempty"`
+	// Sensitivity is absent when the plan has none, so that plans
+	// without it keep their canonical form.
+	Sensitivity []canonSensitivity `json:"sensitivity,omitempty"`
 }
 
 type canonData struct {
@@ -181,6 +184,7 @@ func (p *Plan) canonical() canonPlan {
 		Inference:   p.Inference.canonical(),
 		Dictionary:  p.canonicalDictionary(),
 		Assumptions: p.Assumptions.canonical(),
+		Sensitivity: p.canonicalSensitivity(),
 		Outcomes:    []canonOutcome{},
 		Rules:       []map[string]any{},
 	}

@@ -132,6 +132,12 @@ func (d *decoder) checkDictionary(p *Plan) {
 	used := p.UsedColumns()
 	for _, e := range p.Dictionary {
 		u, ok := findUsed(used, e.Column)
+		if !ok && d.derived {
+			// A sensitivity analysis's plan: the dictionary may describe
+			// the columns another analysis uses (the plan's own check
+			// counts them).
+			continue
+		}
 		if !ok {
 			var names []string
 			for _, c := range used {
@@ -221,6 +227,13 @@ func (p *Plan) UsedColumns() []UsedColumn {
 	add(p.Data.Cluster, RoleCluster, "data.cluster")
 	for i, c := range p.Subset {
 		add(c.Column, RoleSubset, itemPath("subset", i))
+	}
+	// Then the columns only a sensitivity analysis uses, named at its
+	// change (the only way it brings a column).
+	for _, s := range p.Sensitivity {
+		for _, u := range s.Plan.UsedColumns() {
+			add(u.Column, u.Role, s.Key+".change."+u.Key)
+		}
 	}
 	return out
 }

@@ -77,7 +77,7 @@ func (x *Key) range_(lo, hi float64) *Key { x.Min, x.Max = &lo, &hi; return x }
 func mkey(name, doc string, ks ...*Key) *Key { return k(name, KindMapping, doc).keys(ks...) }
 
 // Spec is every key of a plan.
-var Spec = mkey("", "An analysis plan.",
+var Spec = withSensitivity(mkey("", "An analysis plan.",
 	k("version", KindInteger, "The plan format; must be 1.").req(),
 	k("title", KindText, "The title of the analysis, shown in the report."),
 	k("seed", KindInteger, "Seed of everything drawn at random (random starts of constrained fits).").dflt("1"),
@@ -240,7 +240,7 @@ var Spec = mkey("", "An analysis plan.",
 	k("deviations", KindList, "Why the plan departs from its frozen form (ordplan freeze): each changed key needs a reason, or check and run stop (unless --allow-unregistered-changes). Not part of the frozen form.").item(mkey("", "One deviation.",
 		k("key", KindText, "A key path of the canonical form that changed, as the comparison prints it (rules[2].reject_if_test_rejects.alpha), or a section above it (rules[2], rules).").req(),
 		k("reason", KindText, "Why it changed, in words a reader of the report understands.").req())),
-)
+))
 
 func chooseRule(name, doc, margin string) *Key {
 	return mkey(name, doc,

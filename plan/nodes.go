@@ -24,6 +24,8 @@ type decoder struct {
 	// rows are those a simulation of the plan makes (nil: the plan is
 	// read for no simulation in particular, so assumptions.n as stated)
 	rows *Rows
+	// derived: the plan read is a sensitivity analysis's (derivePlan)
+	derived bool
 }
 
 func newDecoder(file string) *decoder {

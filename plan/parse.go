@@ -102,9 +102,20 @@ func parse(src []byte, path string, withData bool, rows *Rows) (*Plan, error) {
 	p := &Plan{Path: path, Dir: filepath.Dir(path), Hash: hex.EncodeToString(sum[:])}
 	d.decodePlan(root, p)
 	d.applyDefaults(p)
+	// The sensitivity analyses are read before the plan's checks, which
+	// count the columns they use among the plan's (UsedColumns), and
+	// finished after them (their problems that the plan has too are said
+	// once).
+	var sens *sensitivityRead
+	if v := d.nodes["sensitivity"]; !isNull(v) {
+		sens = d.readSensitivity(root, v, p, withData)
+	}
 	d.check(p)
 	if withData {
 		d.checkDataColumns(p)
+	}
+	if sens != nil {
+		d.finishSensitivity(sens, p)
 	}
 	if len(d.errs) > 0 {
 		sortErrors(d.errs)

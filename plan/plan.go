@@ -39,6 +39,9 @@ type Plan struct {
 	Assumptions *Assumptions // expected data, for rehearse and power (optional)
 	Dictionary  []Entry      // what each used column holds (optional; when given, every used column)
 	Deviations  []Deviation  // why the plan departs from its frozen form; not in the canonical form
+	// Sensitivity are the sensitivity analyses fixed in the plan, in its
+	// order (in the canonical form).
+	Sensitivity []Sensitivity
 	// Unedited are the places still marked by `ordplan init` (EditMarker):
 	// guesses to confirm, placeholders to replace. Not in the canonical
 	// form; freeze refuses a plan that has any, check and run warn.

@@ -40,6 +40,7 @@ func build(r *runner.Result, dec *runner.Decisions, changes []string) *doc {
 	for _, or := range r.Outcomes {
 		writeOutcome(d, r, or)
 	}
+	writeSensitivity(d, r)
 	writeLimits(d, r)
 	writeMethods(d, r)
 	writeReproducibility(d, r)
@@ -118,6 +119,9 @@ func writeSummary(d *doc, r *runner.Result) {
 			}
 		}
 		items = append(items, item)
+	}
+	if s := sensitivitySummary(r); s != "" {
+		items = append(items, s)
 	}
 	d.list(items)
 	chosen := 0
@@ -266,6 +270,7 @@ func writeLimits(d *doc, r *runner.Result) {
 		selectionSentence(r),
 		chosenSentence(r, "Standard errors of predicted probabilities and marginal effects use the delta method: they are first-order approximations."),
 		multiplicitySentence(r),
+		limitIf(len(r.Sensitivity) > 0, sensitivityLimit),
 	}
 	d.list(slices.DeleteFunc(items, func(s string) bool { return s == "" }))
 }

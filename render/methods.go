@@ -253,6 +253,9 @@ func writeMethods(d *doc, r *runner.Result) {
 		}
 		d.p("%s", strings.Join(s, " "))
 	}
+	if sm := sensitivityMethods(r); sm != "" {
+		d.p("%s", sm)
+	}
 	d.p("References:")
 	d.list(c.list())
 }

@@ -66,6 +66,17 @@ func CheckData(p *plan.Plan) ([]string, error) {
 	if err := checkHypothesisNames(p, scopes); err != nil {
 		return nil, err
 	}
+	// Each sensitivity analysis is checked against the data as a plan
+	// of its own.
+	for _, s := range p.Sensitivity {
+		w, err := CheckData(s.OnData(p))
+		if err != nil {
+			return nil, fmt.Errorf("%s: %w", s.Title(), err)
+		}
+		for _, x := range w {
+			warnings = append(warnings, s.Title()+": "+x)
+		}
+	}
 	return warnings, nil
 }
 

@@ -30,6 +30,9 @@ type Decisions struct {
 	Simulated *Simulation        `json:"simulated_data,omitempty"`
 	Notes     []string           `json:"notes"`
 	Outcomes  []OutcomeDecisions `json:"outcomes"`
+	// Sensitivity are the plan's sensitivity analyses (absent when it
+	// has none).
+	Sensitivity []SensitivityRecord `json:"sensitivity,omitempty"`
 }
 
 // PlanRef names the plan of a run.
@@ -322,6 +325,7 @@ func BuildDecisions(r *Result) *Decisions {
 		}
 		d.Outcomes = append(d.Outcomes, od)
 	}
+	d.Sensitivity = sensitivityRecords(r)
 	return d
 }
 
@@ -389,6 +393,9 @@ type RunRecord struct {
 	// "power"): an output folder holds one command's outputs (absent in
 	// records written before it was kept, all of run or rehearse).
 	MadeBy string `json:"made_by,omitempty"`
+	// Sensitivity are the plan's sensitivity analyses run (absent when
+	// none).
+	Sensitivity []SensitivityRunRecord `json:"sensitivity,omitempty"`
 }
 
 // RunJSON is run.json for a run whose outputs are files (by name): the
@@ -400,14 +407,22 @@ func RunJSON(r *Result, madeBy string, files map[string][]byte) ([]byte, error) 
 		Plan: PlanRef{File: filepath.Base(r.Plan.Path), Title: r.Plan.Title, SHA256: r.Plan.Hash},
 		Data: &data, NewRows: newRowsSheet(newRowsRef(r), r), Imputed: r.Imputed, DataColumns: r.DataColumns(), Seed: r.Plan.Seed}
 	rec.Timestamp = r.Started
-	for _, or := range r.Outcomes {
-		if or.Imputed != nil && or.Imputed.Chained != nil {
-			rec.Imputation = append(rec.Imputation, or.Imputed.Chained)
-		}
-	}
+	rec.Imputation = imputationRecords(r)
+	rec.Sensitivity = sensitivityRunRecords(r)
 	rec.GoVersion, rec.Revision, rec.Platform, rec.Command, rec.MadeBy = r.GoVersion, r.Revision, r.Platform, r.Command, madeBy
 	rec.Registration = registrationRecord(r.Registration)
 	return rec.withOutputs(files)
+}
+
+// imputationRecords say how the program imputed each outcome's data.
+func imputationRecords(r *Result) []*ChainedRecord {
+	var out []*ChainedRecord
+	for _, or := range r.Outcomes {
+		if or.Imputed != nil && or.Imputed.Chained != nil {
+			out = append(out, or.Imputed.Chained)
+		}
+	}
+	return out
 }
 
 // SimulationRunJSON is run.json for `ordplan power`, which reads no data

@@ -24,6 +24,9 @@ type Options struct {
 	// (OutcomeResult.TermTests, one refit per term): a power study reads
 	// only the plan's hypotheses of each replicate.
 	NoTermTests bool
+	// NoSensitivity leaves out the plan's sensitivity analyses (a power
+	// study reads only the primary analysis of each replicate).
+	NoSensitivity bool
 }
 
 // Progress hears of the fits of a run as they finish.
@@ -87,6 +90,7 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 		return nil, err
 	}
 	adjustHypotheses(an, res)
+	res.Sensitivity = runSensitivity(p, opt)
 	return res, nil
 }
 

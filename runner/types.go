@@ -44,6 +44,8 @@ type Result struct {
 	// Analysis is the plan resolved: how the data were read, the fit
 	// options and the covariance policy (set by Run, which resolves once).
 	Analysis *Analysis `json:"-"`
+	// Sensitivity are the plan's sensitivity analyses, run, in its order.
+	Sensitivity []*SensitivityResult
 }
 
 // OutcomeResult holds the fits, tests and decisions of one outcome.

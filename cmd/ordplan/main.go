@@ -25,7 +25,8 @@ const (
 	exitFail  = 1 // the input or the analysis failed
 	exitUsage = 2 // the command line is wrong
 	// exitNoChoice: the run finished and wrote its outputs, but for some
-	// outcome every candidate was rejected and the plan names no fallback.
+	// outcome every candidate was rejected and the plan names no fallback,
+	// or a sensitivity analysis of the plan could not be run.
 	exitNoChoice = 3
 )
 

@@ -72,6 +72,12 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 	for _, s := range runner.DescribeRules(p) {
 		fmt.Fprintln(stdout, "  "+s)
 	}
+	if len(p.Sensitivity) > 0 {
+		fmt.Fprintln(stdout, "The sensitivity analyses, each the plan with its changes, checked as a plan and run with the same rules after it:")
+		for _, s := range p.Sensitivity {
+			fmt.Fprintf(stdout, "  %s (line %d): changes %s\n", s.Name, s.Line, strings.Join(s.Changes, ", "))
+		}
+	}
 	if *noData {
 		// Last, so that a clean check of the plan alone is not read as
 		// a check of the data.
@@ -179,11 +185,38 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 			fmt.Fprintf(stdout, "%s: chosen: %s\n", o.Outcome, *o.Chosen)
 		}
 	}
+	if sensitivityLines(dec, stdout) {
+		code = exitNoChoice
+	}
 	for _, c := range changes {
 		fmt.Fprintf(stdout, "change: %s\n", c)
 	}
 	fmt.Fprintf(stdout, "report: %s\n", filepath.Join(dir, "report.html"))
 	return code
+}
+
+// sensitivityLines prints the choice of each sensitivity analysis of a
+// run, beside the primary analysis's, and reports whether one could not
+// be run (its warning is on stderr: warnFound).
+func sensitivityLines(dec *runner.Decisions, stdout io.Writer) (failed bool) {
+	for _, s := range dec.Sensitivity {
+		if s.Error != "" {
+			fmt.Fprintf(stdout, "sensitivity analysis %s: could not be run\n", s.Name)
+			failed = true
+			continue
+		}
+		for _, o := range s.Outcomes {
+			switch {
+			case o.Chosen == nil:
+				fmt.Fprintf(stdout, "sensitivity analysis %s: %s: no model chosen\n", s.Name, o.Outcome)
+			case o.SameAsPrimary:
+				fmt.Fprintf(stdout, "sensitivity analysis %s: %s: chosen: %s, as in the primary analysis\n", s.Name, o.Outcome, *o.Chosen)
+			default:
+				fmt.Fprintf(stdout, "sensitivity analysis %s: %s: chosen: %s, not the primary analysis's choice\n", s.Name, o.Outcome, *o.Chosen)
+			}
+		}
+	}
+	return failed
 }
 
 func isTerminal(f *os.File) bool {
@@ -292,7 +325,7 @@ func warnFound(p *plan.Plan, res *runner.Result, stderr io.Writer) {
 	for _, w := range runner.BinaryWarnings(p, found) {
 		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
 	}
-	for _, w := range slices.Concat(runner.FewClustersWarnings(res), runner.ImputedCopies(res.Imputed)) {
+	for _, w := range slices.Concat(runner.FewClustersWarnings(res), runner.ImputedCopies(res.Imputed), runner.SensitivityWarnings(res)) {
 		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
 	}
 }

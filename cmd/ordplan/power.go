@@ -105,7 +105,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		// jobs carry the replicate's data hash, so replicates never share
 		// results.
 		opt.Run = func(q *plan.Plan) (*runner.Result, error) {
-			return runOnQueue(ctx, c, q, runner.Options{Workers: 1, NoTermTests: true}, qlog)
+			return runOnQueue(ctx, c, q, runner.Options{Workers: 1, NoTermTests: true, NoSensitivity: true}, qlog)
 		}
 	}
 	pr, err := simulate.Power(p, opt)

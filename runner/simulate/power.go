@@ -358,7 +358,7 @@ func runReplicate(p *plan.Plan, sim *Sim, n, r int, path string, opt PowerOption
 	run := opt.Run
 	if run == nil {
 		run = func(q *plan.Plan) (*runner.Result, error) {
-			return runner.Run(q, runner.Options{Workers: 1, NoTermTests: true})
+			return runner.Run(q, runner.Options{Workers: 1, NoTermTests: true, NoSensitivity: true})
 		}
 	}
 	res, err := run(&q)

@@ -1,0 +1,218 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"ordplan/render/numfmt"
+)
+
+// sensitivityPlan is a small plan with two sensitivity analyses: a
+// subset of rows and imputation in place of complete cases.
+const sensitivityPlan = `version: 1
+title: Sensitivity analyses
+data:
+  file: sens.csv
+  missing: drop
+outcomes:
+  - column: y
+predictors: [a, b]
+models:
+  approaches: [cumulative, adjacent]
+  effects: [parallel, nonparallel]
+tests: {parallel_lines: [lr]}
+rules:
+  - reject_unconverged: true
+  - choose: {by: bic}
+`
+
+const sensitivitySection = `sensitivity:
+  - name: without_s3
+    why: Site s3 changed its protocol halfway.
+    change:
+      subset:
+        - {column: site, none_of: [s3]}
+  - name: imputed
+    why: Complete cases assume the rows dropped are like those kept.
+    change:
+      data.missing: impute
+      data.imputation: {sets: 3, iterations: 2}
+`
+
+// sensitivityData writes sens.csv: a seeded invented study of 300 rows,
+// b missing in about one row in eight.
+func sensitivityData(t *testing.T, dir string) {
+	t.Helper()
+	rng := rand.New(rand.NewPCG(20261205, 3))
+	var b strings.Builder
+	b.WriteString("y,a,b,site\n")
+	for i := 0; i < 300; i++ {
+		a := rng.NormFloat64()
+		x := rng.IntN(2)
+		u := rng.Float64()
+		z := 0.9*a + 0.7*float64(x) + math.Log(u/(1-u))
+		y := 1
+		if z > -0.5 {
+			y = 2
+		}
+		if z > 0.8 {
+			y = 3
+		}
+		bs := fmt.Sprint(x)
+		if rng.IntN(8) == 0 {
+			bs = "NA"
+		}
+		fmt.Fprintf(&b, "%d,%.4f,%s,s%d\n", y, a, bs, 1+i%3)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "sens.csv"), []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+}
+
+type sensDecisions struct {
+	Outcomes []struct {
+		Chosen   *string `json:"chosen"`
+		RowsUsed int     `json:"rows_used"`
+		Fits     []struct {
+			ID        string             `json:"id"`
+			Estimates map[string]float64 `json:"estimates"`
+			StdErrors map[string]float64 `json:"std_errors"`
+		} `json:"fits"`
+	} `json:"outcomes"`
+	Sensitivity []struct {
+		Name     string   `json:"name"`
+		Changes  []string `json:"changes"`
+		Error    string   `json:"error"`
+		Outcomes []struct {
+			RowsUsed      int     `json:"rows_used"`
+			Chosen        *string `json:"chosen"`
+			SameAsPrimary bool    `json:"same_as_primary"`
+			PrimaryModel  struct {
+				Model     string `json:"model"`
+				Estimates []struct {
+					Parameter string  `json:"parameter"`
+					Estimate  float64 `json:"estimate"`
+					StdError  float64 `json:"std_error"`
+				} `json:"estimates"`
+			} `json:"primary_model"`
+		} `json:"outcomes"`
+	} `json:"sensitivity"`
+}
+
+func readSensDecisions(t *testing.T, out string) sensDecisions {
+	t.Helper()
+	b, err := os.ReadFile(filepath.Join(out, "decisions.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var d sensDecisions
+	if err := json.Unmarshal(b, &d); err != nil {
+		t.Fatal(err)
+	}
+	return d
+}
+
+// A plan with two sensitivity analyses: each analysis's numbers in the
+// report and decisions.json are those of the same plan, changed as the
+// analysis says, run on its own (the same fit, bit for bit), and a rerun
+// gives the same bytes.
+func TestSensitivityAnalysesAsSeparatePlans(t *testing.T) {
+	dir := t.TempDir()
+	sensitivityData(t, dir)
+	write := func(name, src string) string {
+		p := filepath.Join(dir, name)
+		if err := os.WriteFile(p, []byte(src), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	main := write("main.yaml", sensitivityPlan+sensitivitySection)
+	separate := []string{
+		write("subset.yaml", sensitivityPlan+"subset:\n  - {column: site, none_of: [s3]}\n"),
+		write("imputed.yaml", strings.Replace(sensitivityPlan, "  missing: drop\n", "  missing: impute\n  imputation: {sets: 3, iterations: 2}\n", 1)),
+	}
+	run := func(plan, out string) {
+		t.Helper()
+		stdout, stderr, code := runCLI("run", plan, "--out", out, "--quiet")
+		if code != 0 {
+			t.Fatalf("%s: exit %d: %s %s", plan, code, stdout, stderr)
+		}
+	}
+	a, b := filepath.Join(dir, "a"), filepath.Join(dir, "b")
+	run(main, a)
+	run(main, b)
+	for _, f := range []string{"decisions.json", "report.md", "report.html", "run.json"} {
+		x, err1 := os.ReadFile(filepath.Join(a, f))
+		y, err2 := os.ReadFile(filepath.Join(b, f))
+		if err1 != nil || err2 != nil || !bytes.Equal(x, y) {
+			t.Errorf("%s differs between runs (%v %v)", f, err1, err2)
+		}
+	}
+	d := readSensDecisions(t, a)
+	if len(d.Sensitivity) != 2 || d.Sensitivity[0].Name != "without_s3" || d.Sensitivity[1].Name != "imputed" {
+		t.Fatalf("sensitivity records: %+v", d.Sensitivity)
+	}
+	primary := *d.Outcomes[0].Chosen
+	report, _ := os.ReadFile(filepath.Join(a, "report.md"))
+	for i, plan := range separate {
+		s := d.Sensitivity[i]
+		if s.Error != "" || len(s.Outcomes) != 1 {
+			t.Fatalf("%s: %+v", s.Name, s)
+		}
+		so := s.Outcomes[0]
+		out := filepath.Join(dir, fmt.Sprintf("separate%d", i))
+		run(plan, out)
+		sep := readSensDecisions(t, out).Outcomes[0]
+		if *so.Chosen != *sep.Chosen || so.RowsUsed != sep.RowsUsed || so.SameAsPrimary != (*sep.Chosen == primary) {
+			t.Errorf("%s: chose %s on %d rows (same as primary %v); the separate plan %s on %d rows", s.Name, *so.Chosen, so.RowsUsed, so.SameAsPrimary, *sep.Chosen, sep.RowsUsed)
+		}
+		if so.PrimaryModel.Model != primary || len(so.PrimaryModel.Estimates) == 0 {
+			t.Fatalf("%s: primary model %+v", s.Name, so.PrimaryModel)
+		}
+		var fitted bool
+		for _, f := range sep.Fits {
+			if f.ID != primary {
+				continue
+			}
+			fitted = true
+			for _, e := range so.PrimaryModel.Estimates {
+				if e.Estimate != f.Estimates[e.Parameter] || e.StdError != f.StdErrors[e.Parameter] {
+					t.Errorf("%s: %s = %v (%v), the separate plan's %v (%v)", s.Name, e.Parameter, e.Estimate, e.StdError, f.Estimates[e.Parameter], f.StdErrors[e.Parameter])
+				}
+				row := fmt.Sprintf("| %s | %s | %s | %s |", e.Parameter, s.Name, numfmt.Est(f.Estimates[e.Parameter]), numfmt.Est(f.StdErrors[e.Parameter]))
+				if !bytes.Contains(report, []byte(row)) {
+					t.Errorf("report.md lacks the row %s", row)
+				}
+			}
+		}
+		if !fitted {
+			t.Errorf("%s: the separate plan did not fit %s", s.Name, primary)
+		}
+	}
+	for _, w := range []string{"## Sensitivity analyses", "The sensitivity analyses shown are those the plan fixed in advance, and only those.",
+		"it is not proof that the results are robust to changes not tried", "The plan fixed 2 sensitivity analyses in advance",
+		"`data.missing`: `\"drop\"` → `\"impute\"`"} {
+		if !bytes.Contains(report, []byte(w)) {
+			t.Errorf("report.md lacks %q", w)
+		}
+	}
+	var rec struct {
+		Sensitivity []struct {
+			Name       string            `json:"name"`
+			Changes    []string          `json:"changes"`
+			Imputation []json.RawMessage `json:"imputation"`
+		} `json:"sensitivity"`
+	}
+	rj, _ := os.ReadFile(filepath.Join(a, "run.json"))
+	if err := json.Unmarshal(rj, &rec); err != nil || len(rec.Sensitivity) != 2 || rec.Sensitivity[1].Name != "imputed" ||
+		strings.Join(rec.Sensitivity[1].Changes, ",") != "data.missing,data.imputation" || len(rec.Sensitivity[1].Imputation) != 1 {
+		t.Errorf("run.json's sensitivity: %v %+v", err, rec.Sensitivity)
+	}
+}

@@ -1,0 +1,57 @@
+package lock
+
+import (
+	"errors"
+	"strings"
+	"testing"
+)
+
+const withSensitivity = basePlan + `sensitivity:
+  - name: sandwich_errors
+    why: The observed information may understate the errors.
+    change:
+      covariance: sandwich
+  - name: without_low_b
+    why: Rows with b below 0 were measured otherwise.
+    change:
+      subset:
+        - {column: b, at_least: 0}
+`
+
+// The sensitivity analyses are part of the registered plan: a change to
+// one after registration is a deviation like any other, named at its key
+// and refused without a stated reason.
+func TestSensitivityChangesAreDeviations(t *testing.T) {
+	src := strings.Replace(withSensitivity, "at_least: 0", "at_least: 1", 1)
+	p, _ := setupFrom(t, withSensitivity, src)
+	st, err := Check(p, false)
+	var ue *UnexplainedError
+	if !errors.As(err, &ue) {
+		t.Fatalf("want an UnexplainedError, got %v", err)
+	}
+	if len(st.Changes) != 1 || st.Changes[0].Path != "sensitivity[1].change.subset[0].at_least" || st.Changes[0].From != "0" || st.Changes[0].To != "1" {
+		t.Fatalf("changes %+v", st.Changes)
+	}
+	// With a stated reason it is a deviation.
+	p, _ = setupFrom(t, withSensitivity, src+"deviations:\n  - key: sensitivity[1]\n    reason: the cut-off was misread\n")
+	if st, err = Check(p, false); err != nil || st.State != StateDeviations || st.Changes[0].Reason != "the cut-off was misread" {
+		t.Fatalf("%v %+v", err, st)
+	}
+	// An analysis added after registration, or one removed, is a change too.
+	p, _ = setup(t, withSensitivity)
+	st, _ = Check(p, true)
+	if len(st.Changes) != 1 || st.Changes[0].Path != "sensitivity" || st.Changes[0].From != "(absent)" {
+		t.Fatalf("added: %+v", st.Changes)
+	}
+	p, _ = setupFrom(t, withSensitivity, basePlan)
+	st, _ = Check(p, true)
+	if len(st.Changes) != 1 || st.Changes[0].Path != "sensitivity" || st.Changes[0].To != "(absent)" {
+		t.Fatalf("removed: %+v", st.Changes)
+	}
+	// Its why is part of it.
+	p, _ = setupFrom(t, withSensitivity, strings.Replace(withSensitivity, "otherwise.", "otherwise", 1))
+	st, _ = Check(p, true)
+	if len(st.Changes) != 1 || st.Changes[0].Path != "sensitivity[1].why" {
+		t.Fatalf("why: %+v", st.Changes)
+	}
+}

@@ -1,0 +1,209 @@
+package render
+
+import (
+	"fmt"
+	"slices"
+	"strings"
+
+	"ordplan/plan"
+	"ordplan/plan/lock"
+	"ordplan/render/numfmt"
+	"ordplan/runner"
+)
+
+// sensitivityLimit is what the report says of every set of sensitivity
+// analyses: they are the ones fixed in advance, and their agreement
+// shows no robustness beyond them.
+const sensitivityLimit = "The sensitivity analyses shown are those the plan fixed in advance, and only those. Agreement between them shows that the choice and the estimates did not move under the changes tried; it is not proof that the results are robust to changes not tried (other subsets of rows, other models or predictors, another handling of missing values, data missing not at random, confounding)."
+
+// writeSensitivity writes the section of the plan's sensitivity analyses:
+// what each changes and why, the model its rules chose beside the primary
+// analysis's, and the primary chosen model's estimates under each. The
+// numbers are those of decisions.json (runner.KeyEstimates,
+// runner.PrimaryModelUnder).
+func writeSensitivity(d *doc, r *runner.Result) {
+	if len(r.Sensitivity) == 0 {
+		return
+	}
+	d.h(2, "Sensitivity analyses")
+	d.p("Each sensitivity analysis below is the primary plan with the change listed, checked as a whole plan and run on the same data through the same candidate models and decision rules (its inference beyond the estimates, such as hypotheses and marginal effects, is not run). %s", sensitivityLimit)
+	var rows [][]string
+	for _, sr := range r.Sensitivity {
+		s := sr.Sensitivity
+		var ch []string
+		for _, c := range sensitivityChanges(r, s) {
+			ch = append(ch, fmt.Sprintf("%s: %s → %s", mdCode(c.Path), mdCode(c.From), mdCode(c.To)))
+		}
+		rows = append(rows, []string{md(mdText(s.Name)), md(strings.Join(ch, "; ")), s.Why})
+	}
+	d.captioned("Sensitivity analyses fixed in the plan: what each changes (primary plan → this analysis) and why").table([]string{"Analysis", "Changes", "Why"}, rows)
+	for _, sr := range r.Sensitivity {
+		if sr.Err != "" {
+			d.p("**The sensitivity analysis %s could not be run:** %s", mdText(sr.Sensitivity.Name), mdText(sr.Err))
+		}
+	}
+	level, _ := confidence(r)
+	for _, or := range r.Outcomes {
+		writeSensitivityOutcome(d, r, or, level)
+	}
+}
+
+// sensitivityChanges are the changes of an analysis key by key, down to
+// the values that differ (categorical.street_type.unobserved: "refuse" →
+// "drop"), as the comparison of a plan with its lock finds them
+// (lock.Diff); a value the plan does not have is (none).
+func sensitivityChanges(r *runner.Result, s plan.Sensitivity) []lock.Change {
+	var out []lock.Change
+	for _, v := range s.Values(r.Plan) {
+		wrap := func(js string) []byte {
+			if js == "null" {
+				return []byte("{}")
+			}
+			return []byte(`{"` + v.Key + `": ` + js + `}`)
+		}
+		cs, err := lock.Diff(wrap(v.Primary), wrap(v.Here))
+		if err != nil || len(cs) == 0 {
+			cs = []lock.Change{{Path: v.Key, From: v.Primary, To: v.Here}}
+		}
+		for _, c := range cs {
+			for _, x := range []*string{&c.From, &c.To} {
+				if *x == lock.Absent || *x == "null" {
+					*x = "(none)"
+				}
+			}
+			out = append(out, c)
+		}
+	}
+	return out
+}
+
+// writeSensitivityOutcome writes, for one outcome, the model each
+// analysis chose and the primary chosen model's estimates under each.
+func writeSensitivityOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult, level float64) {
+	d.h(3, "Sensitivity analyses of "+mdText(or.Outcome.Label))
+	primary := "none"
+	if or.Chosen != nil {
+		primary = or.Chosen.ID
+	}
+	rows := [][]string{{"primary analysis (the plan)", fmt.Sprint(or.AsRead().N), primary, ""}}
+	for _, sr := range r.Sensitivity {
+		sor := sr.Outcome(or.Outcome.Column)
+		if sor == nil {
+			rows = append(rows, []string{sr.Sensitivity.Name, "", "not run", ""})
+			continue
+		}
+		chosen, same := "none: "+strings.TrimSuffix(sor.Choice, "."), "no"
+		if sor.Chosen != nil {
+			chosen = sor.Chosen.ID
+			if sor.Fallback {
+				chosen += " (the plan's fallback)"
+			}
+			if or.Chosen != nil && sor.Chosen.ID == or.Chosen.ID {
+				same = "yes"
+			}
+		}
+		rows = append(rows, []string{sr.Sensitivity.Name, fmt.Sprint(sor.AsRead().N), chosen, same})
+	}
+	d.captioned("The model the rules chose under each analysis, "+or.Outcome.Column).table([]string{"Analysis", "Rows used", "Model chosen", "The primary analysis's choice"}, rows)
+	if or.Chosen == nil {
+		d.p("The primary analysis chose no model, so there are no estimates to compare.")
+		return
+	}
+	res := or.Chosen.Result
+	type column struct {
+		name string
+		m    runner.SensitivityModel
+	}
+	cols := []column{{"primary analysis", runner.SensitivityModel{Model: or.Chosen.ID, Estimates: runner.KeyEstimates(res, level)}}}
+	var missing []string
+	for _, sr := range r.Sensitivity {
+		m := runner.PrimaryModelUnder(or.Chosen.ID, sr.Outcome(or.Outcome.Column), level)
+		if m.NotFitted != "" {
+			missing = append(missing, fmt.Sprintf("%s: %s", mdText(sr.Sensitivity.Name), mdText(m.NotFitted)))
+			continue
+		}
+		cols = append(cols, column{sr.Sensitivity.Name, m})
+	}
+	// The parameters in the primary fit's order, then those only an
+	// analysis's fit has (a term it adds), in its order.
+	var params []string
+	for _, c := range cols {
+		for _, e := range c.m.Estimates {
+			if !slices.Contains(params, e.Parameter) {
+				params = append(params, e.Parameter)
+			}
+		}
+	}
+	var est [][]string
+	for _, p := range params {
+		for _, c := range cols {
+			row := []string{ParamLabel(res, p), c.name, "not in this model", "", "", ""}
+			for _, e := range c.m.Estimates {
+				if e.Parameter == p {
+					row = []string{ParamLabel(res, p), c.name, numfmt.Est(e.Estimate), numfmt.Est(e.StdError), numfmt.Est(e.Lower), numfmt.Est(e.Upper)}
+				}
+			}
+			est = append(est, row)
+		}
+	}
+	d.p("The primary analysis's chosen model, %s, fitted under each sensitivity analysis (whatever its rules chose): its effects with %s intervals, as in the primary analysis's table of estimates; the boundaries' tau are left out.", or.Chosen.ID, pct(level))
+	d.captioned("Estimates of "+or.Chosen.ID+" under each analysis, "+or.Outcome.Column).table(
+		[]string{"Parameter", "Analysis", "Estimate", "Std. error", pct(level) + " low", pct(level) + " high"}, est)
+	if len(missing) > 0 {
+		d.p("Not fitted under: %s.", strings.Join(missing, "; "))
+	}
+}
+
+// sensitivitySummary is the summary's line on the sensitivity analyses
+// ("" when the plan has none).
+func sensitivitySummary(r *runner.Result) string {
+	if len(r.Sensitivity) == 0 {
+		return ""
+	}
+	same, ran := 0, 0
+	for _, sr := range r.Sensitivity {
+		if sr.Result == nil {
+			continue
+		}
+		ran++
+		all := true
+		for _, or := range r.Outcomes {
+			sor := sr.Outcome(or.Outcome.Column)
+			all = all && sor != nil && or.Chosen != nil && sor.Chosen != nil && sor.Chosen.ID == or.Chosen.ID
+		}
+		if all {
+			same++
+		}
+	}
+	s := fmt.Sprintf("**Sensitivity analyses** fixed in the plan: %d; under %d of the %d run the rules chose the primary analysis's model for every outcome (see Sensitivity analyses: the changes tried, and only those).", len(r.Sensitivity), same, ran)
+	if ran < len(r.Sensitivity) {
+		s += fmt.Sprintf(" **%d could not be run.**", len(r.Sensitivity)-ran)
+	}
+	return s
+}
+
+// sensitivityMethods is the methods paragraph on the sensitivity
+// analyses ("" when the plan has none).
+func sensitivityMethods(r *runner.Result) string {
+	if len(r.Sensitivity) == 0 {
+		return ""
+	}
+	var each []string
+	for _, sr := range r.Sensitivity {
+		var keys []string
+		for _, c := range sensitivityChanges(r, sr.Sensitivity) {
+			keys = append(keys, fmt.Sprintf("%s set to %s", mdCode(c.Path), mdCode(c.To)))
+		}
+		each = append(each, fmt.Sprintf("%s (%s; why: %s)", mdText(sr.Sensitivity.Name), strings.Join(keys, ", "), mdText(strings.TrimSuffix(sr.Sensitivity.Why, "."))))
+	}
+	return fmt.Sprintf("The plan fixed %d sensitivity analyses in advance, each the whole analysis repeated with its stated changes to the plan, on the same data, with the same candidate models and decision rules: %s. For each, the model the rules chose and the estimates of the primary analysis's chosen model are reported beside the primary analysis's; they show the effect of these changes only.",
+		len(r.Sensitivity), strings.Join(each, "; "))
+}
+
+// limitIf is s when cond holds, else "" (an item the limits leave out).
+func limitIf(cond bool, s string) string {
+	if cond {
+		return s
+	}
+	return ""
+}

@@ -1,0 +1,219 @@
+package runner
+
+import (
+	"fmt"
+	"strings"
+
+	"ordplan/plan"
+	"ordplan/runner/fit"
+)
+
+// SensitivityResult is one sensitivity analysis of the plan (plan.Sensitivity),
+// run: its plan through Run, as a plan of its own is run, on the data the
+// primary analysis read.
+type SensitivityResult struct {
+	Sensitivity plan.Sensitivity
+	Result      *Result // nil when it could not be run
+	Err         string  // why it could not be run ("" when it ran)
+}
+
+// runSensitivity runs each sensitivity analysis of p (none under
+// opt.NoSensitivity) after the primary analysis, in the plan's order, on
+// the data p reads, with the run's options but no tests of each term and
+// progress lines named by the analysis. An analysis that cannot be run is
+// recorded with the reason: the primary analysis stands without it.
+func runSensitivity(p *plan.Plan, opt Options) []*SensitivityResult {
+	if opt.NoSensitivity {
+		return nil
+	}
+	var out []*SensitivityResult
+	for _, s := range p.Sensitivity {
+		sopt := opt
+		sopt.NoTermTests, sopt.NoSensitivity = true, true
+		if opt.Progress != nil {
+			sopt.Progress = namedProgress{opt.Progress, s.Name}
+		}
+		sr := &SensitivityResult{Sensitivity: s}
+		res, err := Run(s.OnData(p), sopt)
+		if err != nil {
+			sr.Err = err.Error()
+		} else {
+			sr.Result = res
+		}
+		out = append(out, sr)
+	}
+	return out
+}
+
+// namedProgress hears of a sensitivity analysis's fits: the outcome is
+// named "ANALYSIS: OUTCOME".
+type namedProgress struct {
+	Progress
+	name string
+}
+
+func (n namedProgress) Fitted(outcome, id string, done, total int) {
+	n.Progress.Fitted("sensitivity analysis "+n.name+": "+outcome, id, done, total)
+}
+
+// Outcome gives the analysis's result for an outcome column, or nil.
+func (sr *SensitivityResult) Outcome(column string) *OutcomeResult {
+	if sr.Result == nil {
+		return nil
+	}
+	for _, or := range sr.Result.Outcomes {
+		if or.Outcome.Column == column {
+			return or
+		}
+	}
+	return nil
+}
+
+// KeyEstimate is one effect parameter of a fit (not a boundary's tau)
+// with its interval at the plan's confidence level, as the table of the
+// chosen model's estimates gives it (fit.Result.ParamInference).
+type KeyEstimate struct {
+	Parameter string  `json:"parameter"`
+	Estimate  float64 `json:"estimate"`
+	StdError  float64 `json:"std_error"`
+	Lower     float64 `json:"lower"`
+	Upper     float64 `json:"upper"`
+}
+
+// KeyEstimates are the effect parameters of res, in its order, with
+// their intervals at level.
+func KeyEstimates(res *fit.Result, level float64) []KeyEstimate {
+	out := []KeyEstimate{}
+	for i, n := range res.ParamNames {
+		if strings.HasPrefix(n, "tau[") {
+			continue
+		}
+		inf := res.ParamInference(i, level)
+		out = append(out, KeyEstimate{Parameter: n, Estimate: res.Estimates[i], StdError: res.StdErrors[i], Lower: inf.Low, Upper: inf.High})
+	}
+	return out
+}
+
+// SensitivityModel is the primary analysis's chosen model of an outcome
+// fitted under a sensitivity analysis: its estimates, or why there are
+// none.
+type SensitivityModel struct {
+	Model     string        `json:"model"`
+	Estimates []KeyEstimate `json:"estimates"`
+	// NotFitted says why the model has no estimates under the analysis
+	// ("" when it has).
+	NotFitted string `json:"not_fitted,omitempty"`
+	// Verdict is what the analysis's rules made of it (chosen, kept,
+	// rejected: ...).
+	Verdict string `json:"verdict,omitempty"`
+}
+
+// PrimaryModelUnder gives the primary analysis's chosen model (id)
+// fitted under a sensitivity analysis's result for the outcome (sor).
+func PrimaryModelUnder(id string, sor *OutcomeResult, level float64) SensitivityModel {
+	m := SensitivityModel{Model: id, Estimates: []KeyEstimate{}}
+	var f *FitEntry
+	if sor != nil {
+		f = sor.Find(id)
+	}
+	switch {
+	case sor == nil:
+		m.NotFitted = "the sensitivity analysis could not be run"
+	case f == nil || f.Auxiliary:
+		m.NotFitted = "not in the grid of this sensitivity analysis"
+	case f.Result == nil:
+		m.NotFitted = "no fit: " + f.Err
+	default:
+		m.Estimates = KeyEstimates(f.Result, level)
+		m.Verdict = verdictText(f)
+	}
+	return m
+}
+
+// SensitivityRecord is a sensitivity analysis in decisions.json.
+type SensitivityRecord struct {
+	Name    string   `json:"name"`
+	Why     string   `json:"why"`
+	Changes []string `json:"changes"`
+	// Error says why it could not be run (absent when it ran).
+	Error    string                     `json:"error,omitempty"`
+	Outcomes []SensitivityOutcomeRecord `json:"outcomes"`
+}
+
+// SensitivityOutcomeRecord is one outcome under a sensitivity analysis:
+// the rows used, the model its rules chose, whether that is the primary
+// analysis's choice, and the primary's chosen model fitted under it.
+type SensitivityOutcomeRecord struct {
+	Outcome       string  `json:"outcome"`
+	RowsUsed      int     `json:"rows_used"`
+	Chosen        *string `json:"chosen"`
+	Choice        string  `json:"choice"`
+	Fallback      bool    `json:"fallback,omitempty"`
+	SameAsPrimary bool    `json:"same_as_primary"`
+	// PrimaryModel is the primary analysis's chosen model under this
+	// analysis (absent when the primary analysis chose none).
+	PrimaryModel *SensitivityModel `json:"primary_model,omitempty"`
+}
+
+// sensitivityRecords are the sensitivity analyses of a run for
+// decisions.json, in the plan's order.
+func sensitivityRecords(r *Result) []SensitivityRecord {
+	var out []SensitivityRecord
+	level := r.Plan.Report.ConfidenceLevel
+	for _, sr := range r.Sensitivity {
+		s := sr.Sensitivity
+		rec := SensitivityRecord{Name: s.Name, Why: s.Why, Changes: s.Changes, Error: sr.Err, Outcomes: []SensitivityOutcomeRecord{}}
+		for _, or := range r.Outcomes {
+			sor := sr.Outcome(or.Outcome.Column)
+			if sor == nil {
+				continue
+			}
+			o := SensitivityOutcomeRecord{Outcome: or.Outcome.Column, RowsUsed: sor.AsRead().N, Choice: sor.Choice, Fallback: sor.Fallback}
+			if sor.Chosen != nil {
+				id := sor.Chosen.ID
+				o.Chosen = &id
+				o.SameAsPrimary = or.Chosen != nil && or.Chosen.ID == id
+			}
+			if or.Chosen != nil {
+				m := PrimaryModelUnder(or.Chosen.ID, sor, level)
+				o.PrimaryModel = &m
+			}
+			rec.Outcomes = append(rec.Outcomes, o)
+		}
+		out = append(out, rec)
+	}
+	return out
+}
+
+// SensitivityRunRecord is a sensitivity analysis in run.json: its name,
+// the keys it changes, and how the program imputed its data when it did.
+type SensitivityRunRecord struct {
+	Name       string           `json:"name"`
+	Changes    []string         `json:"changes"`
+	Imputation []*ChainedRecord `json:"imputation,omitempty"`
+	Error      string           `json:"error,omitempty"`
+}
+
+func sensitivityRunRecords(r *Result) []SensitivityRunRecord {
+	var out []SensitivityRunRecord
+	for _, sr := range r.Sensitivity {
+		rec := SensitivityRunRecord{Name: sr.Sensitivity.Name, Changes: sr.Sensitivity.Changes, Error: sr.Err}
+		if sr.Result != nil {
+			rec.Imputation = imputationRecords(sr.Result)
+		}
+		out = append(out, rec)
+	}
+	return out
+}
+
+// SensitivityWarnings are the lines ordplan run prints on standard error
+// for the sensitivity analyses that could not be run.
+func SensitivityWarnings(r *Result) []string {
+	var out []string
+	for _, sr := range r.Sensitivity {
+		if sr.Err != "" {
+			out = append(out, fmt.Sprintf("%s could not be run: %s", sr.Sensitivity.Title(), sr.Err))
+		}
+	}
+	return out
+}
