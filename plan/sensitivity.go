@@ -199,7 +199,11 @@ func (d *decoder) sensitivityChanges(m *mapping) []change {
 	base := m.at("change")
 	n := deref(v)
 	if n.Kind != yaml.MappingNode || len(n.Content) == 0 {
-		d.errorf(n, base, "want a mapping of the keys it changes (one or more of %s) to their values; got %s", strings.Join(SensitivityKeys, ", "), describe(n))
+		got := describe(n)
+		if n.Kind == yaml.MappingNode {
+			got = "an empty mapping: an analysis that changes nothing is the primary analysis"
+		}
+		d.errorf(n, base, "want a mapping of the keys it changes (one or more of %s) to their values; got %s", strings.Join(SensitivityKeys, ", "), got)
 		return nil
 	}
 	var out []change

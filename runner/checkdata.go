@@ -71,7 +71,7 @@ func CheckData(p *plan.Plan) ([]string, error) {
 	for _, s := range p.Sensitivity {
 		w, err := CheckData(s.OnData(p))
 		if err != nil {
-			return nil, fmt.Errorf("%s: %w", s.Title(), err)
+			return nil, fmt.Errorf("%s: %s: %w", p.Path, s.Title(), err)
 		}
 		for _, x := range w {
 			warnings = append(warnings, s.Title()+": "+x)

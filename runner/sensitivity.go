@@ -2,6 +2,7 @@ package runner
 
 import (
 	"fmt"
+	"path/filepath"
 	"strings"
 
 	"ordplan/plan"
@@ -36,13 +37,28 @@ func runSensitivity(p *plan.Plan, opt Options) []*SensitivityResult {
 		sr := &SensitivityResult{Sensitivity: s}
 		res, err := Run(s.OnData(p), sopt)
 		if err != nil {
-			sr.Err = err.Error()
+			sr.Err = folderFree(err.Error(), p)
 		} else {
 			sr.Result = res
 		}
 		out = append(out, sr)
 	}
 	return out
+}
+
+// folderFree is a message with the data file and the plan named as the
+// plan names them, not by the paths they were read at: the outputs do not
+// depend on the folder the command ran in.
+func folderFree(msg string, p *plan.Plan) string {
+	for i, path := range p.Data.Paths() {
+		if f := p.Data.Files()[i]; path != f {
+			msg = strings.ReplaceAll(msg, path, f)
+		}
+	}
+	if b := filepath.Base(p.Path); p.Path != b {
+		msg = strings.ReplaceAll(msg, p.Path, b)
+	}
+	return msg
 }
 
 // namedProgress hears of a sensitivity analysis's fits: the outcome is

@@ -916,6 +916,47 @@ func catalogue(dir string) (items []badInput) {
 					}
 				}
 			}},
+		{id: "P54", name: "a sensitivity analysis changing a key it may not change", args: []string{"check", "--no-data"}, code: 1, lines: true,
+			plan: goodPlan + "sensitivity:\n  - name: s\n    why: w\n    change:\n      rules: []\n      data: {missing: impute}\n      models.partial.free: [a]\n",
+			want: []string{`P54.yaml:18:7: sensitivity[0].change.rules: "rules" cannot be changed by a sensitivity analysis, which changes only data.missing, data.imputation, data.cluster, subset, categorical, predictors, models.partial, models.links, covariance, few_clusters; every other key (the outcomes, the effect structures, the tests, the rules, ...) is the primary plan's`,
+				`P54.yaml:19:7: sensitivity[0].change.data: write the key path in full (such as data.missing: ...), not a section`,
+				`P54.yaml:20:7: sensitivity[0].change.models.partial.free: a sensitivity analysis replaces models.partial whole: give models.partial with its full value`}},
+		{id: "P55", name: "two sensitivity analyses with the same name", args: []string{"check", "--no-data"}, code: 1,
+			plan: goodPlan + "sensitivity:\n  - name: robust\n    why: w\n    change: {covariance: sandwich}\n  - name: robust\n    why: v\n    change: {covariance: sandwich_plain}\n",
+			want: []string{`P55.yaml:18:11: sensitivity[1].name: "robust" already names the sensitivity analysis at line 15; give each its own name`}},
+		{id: "P56", name: "a sensitivity analysis without its reason", args: []string{"check", "--no-data"}, code: 1, lines: true,
+			plan: goodPlan + "sensitivity:\n  - name: robust\n    change: {covariance: sandwich}\n  - name: robust2\n    why: \"  \"\n    change: {covariance: sandwich_plain}\n",
+			want: []string{`P56.yaml:15:5: sensitivity[0].why: required key is missing`,
+				`P56.yaml:18:10: sensitivity[1].why: is empty; say why this sensitivity analysis is done (the doubt about the primary analysis it answers)`}},
+		{id: "P57", name: "a sensitivity analysis giving a key the primary plan's value", args: []string{"check", "--no-data"}, code: 1, lines: true,
+			plan: goodPlan + "sensitivity:\n  - name: same\n    why: w\n    change:\n      data.missing: drop\n      models.links: [logit]\n",
+			want: []string{`P57.yaml:18:7: sensitivity[0].change.data.missing: changes nothing: the primary plan has this value already ("drop"); a sensitivity analysis states only what it changes`,
+				`P57.yaml:19:7: sensitivity[0].change.models.links: changes nothing: the primary plan has this value already (["logit"])`}},
+		{id: "P58", name: "a sensitivity analysis whose plan is not valid", args: []string{"check", "--no-data"}, code: 1, lines: true,
+			plan: edit("effects: [parallel, nonparallel]", "effects: [parallel, partial, nonparallel]\n  partial: {free: [b]}") +
+				"sensitivity:\n  - name: probit\n    why: w\n    change:\n      models.links: [probit, tanh]\n  - name: without_b\n    why: w\n    change:\n      predictors: [a]\n",
+			want: []string{`P58.yaml:10:20: models.partial.free[0]: with sensitivity analysis "without_b" (sensitivity[1], line 20) applied: "b" is not a predictor (predictors: a)`,
+				`P58.yaml:19:30: sensitivity[0].change.models.links[1]: in sensitivity analysis "probit": unknown link "tanh" (want logit, probit, cloglog, loglog or cauchy)`}},
+		{id: "P59", name: "a sensitivity analysis the data refuse", args: []string{"check"}, code: 1,
+			plan: goodPlan + "sensitivity:\n  - name: none_left\n    why: w\n    change:\n      subset:\n        - {column: c, greater_than: 5}\n",
+			want: []string{`P59.yaml: sensitivity analysis "none_left" (sensitivity[0], line 15): d.csv: column "c": the subset keeps no rows: all 120 data rows fail its conditions (outside the subset c > 5: 120)`},
+			check: func(t *testing.T, dir, out, errs string) {
+				// run writes the primary analysis's outputs, says the
+				// analysis could not be run (stdout, stderr, report) and
+				// exits 3.
+				o := filepath.Join(dir, "P59-out")
+				stdout, stderr, code := runCLI("run", filepath.Join(dir, "P59.yaml"), "--out", o, "--quiet")
+				rep, _ := os.ReadFile(filepath.Join(o, "report.md"))
+				if code != 3 || !strings.Contains(stdout, "sensitivity analysis none_left: could not be run") ||
+					!strings.Contains(stderr, `warning: `+filepath.Join(dir, "P59.yaml")+`: sensitivity analysis "none_left" (sensitivity[0], line 15) could not be run: d.csv: column "c": the subset keeps no rows: all 120 data rows fail its conditions (outside the subset c > 5: 120) (plan P59.yaml, outcome "y", plan key subset[0])`) ||
+					!strings.Contains(string(rep), "**The sensitivity analysis none_left could not be run:** d.csv: column \"c\": the subset keeps no rows") {
+					t.Errorf("run: exit %d\n%s\n%s", code, stdout, stderr)
+				}
+			}},
+		{id: "P60", name: "a sensitivity analysis whose change is not a mapping of keys, or is empty", args: []string{"check", "--no-data"}, code: 1, lines: true,
+			plan: goodPlan + "sensitivity:\n  - name: s\n    why: w\n    change: covariance\n  - name: t\n    why: w\n    change: {}\n",
+			want: []string{`P60.yaml:17:13: sensitivity[0].change: want a mapping of the keys it changes (one or more of data.missing, data.imputation, data.cluster, subset, categorical, predictors, models.partial, models.links, covariance, few_clusters) to their values; got string "covariance"`,
+				`P60.yaml:20:13: sensitivity[1].change: want a mapping of the keys it changes (one or more of data.missing,`, `got an empty mapping: an analysis that changes nothing is the primary analysis`}},
 		{id: "P53", name: "plan file that does not exist", args: []string{"check", filepath.Join(dir, "no-such-plan.yaml")}, code: 1,
 			want: []string{"no-such-plan.yaml: the plan file does not exist: check its name and folder"},
 			check: func(t *testing.T, dir, out, errs string) {
