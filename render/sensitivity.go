@@ -85,7 +85,7 @@ func writeSensitivityOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult,
 	if or.Chosen != nil {
 		primary = or.Chosen.ID
 	}
-	rows := [][]string{{"primary analysis (the plan)", fmt.Sprint(or.AsRead().N), primary, ""}}
+	rows := [][]string{{"primary analysis (the plan)", fmt.Sprint(or.AsRead().N), primary, "—"}}
 	for _, sr := range r.Sensitivity {
 		sor := sr.Outcome(or.Outcome.Column)
 		if sor == nil {
@@ -137,7 +137,7 @@ func writeSensitivityOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult,
 	var est [][]string
 	for _, p := range params {
 		for _, c := range cols {
-			row := []string{ParamLabel(res, p), c.name, "not in this model", "", "", ""}
+			row := []string{ParamLabel(res, p), c.name + " (not in this model)", "", "", "", ""}
 			for _, e := range c.m.Estimates {
 				if e.Parameter == p {
 					row = []string{ParamLabel(res, p), c.name, numfmt.Est(e.Estimate), numfmt.Est(e.StdError), numfmt.Est(e.Lower), numfmt.Est(e.Upper)}
