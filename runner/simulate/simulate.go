@@ -140,6 +140,17 @@ func New(p *plan.Plan) (*Sim, error) {
 		}
 		s.Predictors = append(s.Predictors, pr)
 	}
+	if s.Cluster == "" {
+		// A cluster column only a sensitivity analysis uses (for
+		// clustered errors): runs of rows without a cluster effect, as
+		// without assumptions.clusters.
+		for _, u := range p.UsedColumns() {
+			if u.Role == plan.RoleCluster {
+				s.Cluster = u.Column
+				break
+			}
+		}
+	}
 	if s.Cluster != "" {
 		s.clusterRows = plan.DefaultClusterRows
 		if c := a.Clusters; c != nil {
