@@ -191,8 +191,8 @@ func (d *decoder) decodeAssumptions(n *yaml.Node) *Assumptions {
 	}
 	if v := m.get("n"); v != nil {
 		if k, ok := d.integer(v, m.at("n")); ok {
-			if k < 10 || k > 10_000_000 {
-				d.errorf(deref(v), m.at("n"), "sample size %d is out of range (want 10 to 10000000)", k)
+			if k < MinSimulatedRows || k > MaxSimulatedRows {
+				d.errorf(deref(v), m.at("n"), "sample size %d is out of range (want %d to %d)", k, MinSimulatedRows, MaxSimulatedRows)
 			} else {
 				a.N = int(k)
 			}

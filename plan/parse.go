@@ -75,6 +75,14 @@ func Parse(src []byte, path string) (*Plan, error) {
 	return parse(src, path, false, nil)
 }
 
+// The bounds of a number of rows simulated from a plan's assumptions, the
+// one bound of assumptions.n and of the sizes given on the command line
+// (rehearse --n, power --n).
+const (
+	MinSimulatedRows = 10
+	MaxSimulatedRows = 10_000_000
+)
+
 // Rows are the rows a command simulates from a plan's assumptions.
 type Rows struct {
 	// Sizes are the numbers of rows simulated, given by the command-line

@@ -2022,6 +2022,7 @@ func catalogue(dir string) (items []badInput) {
 	items = append(items, registrationItems(dir)...)
 	items = append(items, termItems(dir)...)
 	items = append(items, commandLineItems(dir)...)
+	items = append(items, mistakeItems(dir)...)
 	return items
 }
 

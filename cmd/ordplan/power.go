@@ -37,8 +37,12 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 	var ns []int
 	for _, s := range strings.Split(*sizes, ",") {
 		n, err := strconv.Atoi(strings.TrimSpace(s))
-		if err != nil || n < 10 {
-			fmt.Fprintf(stderr, "ordplan power: --n: want sample sizes of at least 10, comma separated (e.g. 200,400,800), got %q\n", *sizes)
+		if err != nil || n < plan.MinSimulatedRows {
+			fmt.Fprintf(stderr, "ordplan power: --n: want sample sizes of at least %d, comma separated (e.g. 200,400,800), got %q\n", plan.MinSimulatedRows, *sizes)
+			return exitUsage
+		}
+		if n > plan.MaxSimulatedRows {
+			fmt.Fprintf(stderr, "ordplan power: --n: the sample size %d is above %d, the most rows ordplan simulates (as for assumptions.n); give sizes from %d to %d\n", n, plan.MaxSimulatedRows, plan.MinSimulatedRows, plan.MaxSimulatedRows)
 			return exitUsage
 		}
 		if k := slices.Index(ns, n); k >= 0 {

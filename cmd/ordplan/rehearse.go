@@ -49,8 +49,12 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	fs.Visit(func(f *flag.Flag) { nGiven = nGiven || f.Name == "n" })
 	var simulated plan.Rows
 	if nGiven {
-		if *n < 10 {
-			fmt.Fprintln(stderr, "ordplan rehearse: --n must be at least 10")
+		if *n < plan.MinSimulatedRows {
+			fmt.Fprintf(stderr, "ordplan rehearse: --n must be at least %d\n", plan.MinSimulatedRows)
+			return exitUsage
+		}
+		if *n > plan.MaxSimulatedRows {
+			fmt.Fprintf(stderr, "ordplan rehearse: --n %d is above %d, the most rows ordplan simulates (as for assumptions.n); give --n from %d to %d\n", *n, plan.MaxSimulatedRows, plan.MinSimulatedRows, plan.MaxSimulatedRows)
 			return exitUsage
 		}
 		simulated = plan.Rows{Sizes: []int{*n}, Flag: "--n"}
