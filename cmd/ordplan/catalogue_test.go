@@ -11,7 +11,6 @@ import (
 	"archive/zip"
 	"bytes"
 	"compress/gzip"
-	"syscall"
 	"unicode/utf16"
 
 	"encoding/json"
@@ -343,7 +342,7 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 			t.Fatal(err)
 		}
 	}
-	if err := syscall.Mkfifo(filepath.Join(dir, "fifo.csv"), 0o644); err != nil {
+	if err := mkfifo(filepath.Join(dir, "fifo.csv")); err != nil {
 		t.Fatal(err)
 	}
 	os.MkdirAll(filepath.Join(dir, "O1-out"), 0o755)

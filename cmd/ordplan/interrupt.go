@@ -22,7 +22,23 @@ const (
 	writeFailed                    // the write failed; its error says what the folder holds
 )
 
-// interruptWatch catches the interrupts (Ctrl-C, SIGINT; SIGTERM) that
+// stopSignals are the signals that stop a command the way Ctrl-C does:
+// SIGINT, SIGTERM and SIGHUP (the terminal closed). A signal the process
+// was started with ignored (SIGHUP under nohup, SIGINT of a background
+// job) stays ignored: catching it would undo that. Never empty (the
+// signal package would take an empty list for every signal): SIGTERM
+// is always among them.
+func stopSignals() []os.Signal {
+	var out []os.Signal
+	for _, s := range []os.Signal{os.Interrupt, syscall.SIGTERM, syscall.SIGHUP} {
+		if s == syscall.SIGTERM || !signal.Ignored(s) {
+			out = append(out, s)
+		}
+	}
+	return out
+}
+
+// interruptWatch catches the interrupts (Ctrl-C, SIGINT; SIGTERM; SIGHUP) that
 // reach a command while it holds an output folder (from claimOutput to
 // Unlock). Before and after the write the command stops at once with one
 // line on stderr saying what the folder holds; during the write (commit)
@@ -68,7 +84,7 @@ var stopOnInterrupt = func(s os.Signal) {
 func watchInterrupts(command, dir string, hadRecord bool, stderr io.Writer, release func()) *interruptWatch {
 	w := &interruptWatch{command: command, dir: dir, hadRecord: hadRecord, stderr: stderr, release: release,
 		signals: make(chan os.Signal, 1), ended: make(chan struct{})}
-	signal.Notify(w.signals, os.Interrupt, syscall.SIGTERM)
+	signal.Notify(w.signals, stopSignals()...)
 	w.done.Add(1)
 	go w.watch()
 	return w
@@ -111,8 +127,11 @@ func (w *interruptWatch) message(s os.Signal) string {
 		lead = ""
 	}
 	what := "interrupted"
-	if s == syscall.SIGTERM {
+	switch s {
+	case syscall.SIGTERM:
 		what = "stopped (SIGTERM)"
+	case syscall.SIGHUP:
+		what = "stopped (SIGHUP: its terminal was closed)"
 	}
 	head := lead + "ordplan " + w.command + ": " + what
 	switch w.stage {

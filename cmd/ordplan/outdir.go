@@ -269,7 +269,7 @@ const recordFile = "run.json"
 // replace another's (O6). A record written before the command was kept
 // is a run's or a rehearsal's (power kept none).
 //
-// From then until Unlock an interrupt (Ctrl-C, SIGTERM) stops the command
+// From then until Unlock an interrupt (Ctrl-C, SIGTERM, SIGHUP) stops the command
 // with one line on stderr saying what the folder holds (interruptWatch);
 // one arriving while the outputs are written is held until the folder is
 // complete (commit).

@@ -7,7 +7,6 @@ import (
 	"fmt"
 	"os"
 	"os/signal"
-	"syscall"
 	"time"
 
 	"ordplan/runner/queue"
@@ -71,7 +70,7 @@ func usageOrFail(cmd string, err error, stderr interface{ Write([]byte) (int, er
 // a coordinator waits for results. done closes the connection and stops
 // catching the signals.
 func connectQueue(cfg queue.Config, deadline time.Duration) (ctx context.Context, c *queue.Client, done func(), err error) {
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	ctx, stop := signal.NotifyContext(context.Background(), stopSignals()...)
 	c, err = queue.Connect(ctx, cfg)
 	if err != nil {
 		stop()

@@ -10,7 +10,6 @@ import (
 	"os"
 	"path/filepath"
 	"strings"
-	"syscall"
 	"testing"
 	"time"
 	"unicode/utf16"
@@ -56,7 +55,7 @@ func TestNotCSVNamed(t *testing.T) {
 		os.WriteFile(filepath.Join(dir, n), b, 0o644)
 	}
 	fifo := filepath.Join(dir, "fifo.csv")
-	if err := syscall.Mkfifo(fifo, 0o644); err != nil {
+	if err := mkfifo(fifo); err != nil {
 		t.Fatal(err)
 	}
 	cases := map[string]string{
