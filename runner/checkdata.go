@@ -32,11 +32,22 @@ func CheckData(p *plan.Plan) ([]string, error) {
 		if err := a.CheckDesign(r, ld.Design, ld.FitData); err != nil {
 			return nil, err
 		}
-		if w := a.FewClusters(r, ld.Data); w != "" {
+		// The rows the fits use: on imputed data each imputed set's (run
+		// counts the clusters in set 1's rows), not the original file's
+		// complete rows.
+		used := ld.Data
+		if a.Imputed != nil {
+			_, sets, _, err := imputedSets(a, r)
+			if err != nil {
+				return nil, err
+			}
+			used = sets[0]
+		}
+		if w := a.FewClusters(r, used); w != "" {
 			warnings = append(warnings, fmt.Sprintf("outcome %s: %s", r.Outcome, w))
 		}
 		terms := termsOf(ld.Design)
-		if w := a.SingularModels(r, ld.Data, gridModels(a, terms), len(ld.Data.Categories), allColumns(terms)); w != "" {
+		if w := a.SingularModels(r, used, gridModels(a, terms), len(ld.Data.Categories), allColumns(terms)); w != "" {
 			warnings = append(warnings, fmt.Sprintf("outcome %s: %s", r.Outcome, w))
 		}
 		if w := ProfileOutsideWarning(r.Outcome, profileOutside(a, newSourceRanges(ld.Design, ld.Data), r.Options.Keep)); w != "" {
@@ -56,11 +67,6 @@ func CheckData(p *plan.Plan) ([]string, error) {
 				return nil, err
 			}
 			warnings = append(warnings, nr.notPredictedWarnings(r.Outcome)...)
-		}
-		if a.Imputed != nil {
-			if _, _, _, err := imputedSets(a, r); err != nil {
-				return nil, err
-			}
 		}
 	}
 	if err := checkHypothesisNames(p, scopes); err != nil {

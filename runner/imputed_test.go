@@ -280,6 +280,45 @@ func TestImputedDifferentSets(t *testing.T) {
 			t.Errorf("average effect %s %s: df %v fmi %g", me.Predictor, me.Category, pp.DF, pp.FMI)
 		}
 	}
+	// One point over the sets: the effects at the means, on every set, and
+	// the prediction grid hold the numeric columns at their means over the
+	// rows of all imputed sets (by hand here), not over set 1's rows.
+	S := len(or.Design.Sources)
+	byHand := make([]float64, S)
+	rows := 0
+	for _, ds := range or.Imputed.Data {
+		for i := 0; i < ds.N; i++ {
+			for s := range byHand {
+				byHand[s] += ds.X[i*S+s]
+			}
+		}
+		rows += ds.N
+	}
+	set1 := 0.0
+	for i := 0; i < or.Data.N; i++ {
+		set1 += or.Data.X[i*S+1] / float64(or.Data.N)
+	}
+	if math.Abs(set1-byHand[1]/float64(rows)) < 1e-6 {
+		t.Fatalf("x2's mean in set 1 %g equals its mean over the sets: the fixture does not tell them apart", set1)
+	}
+	pf, err := or.NewProfile("x1", nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for s := range byHand {
+		byHand[s] /= float64(rows)
+		for k := range fits {
+			if p := marginalSet(ResolvePlan(p), or.onSet(k), fits[k], "means").Point; math.Abs(p[s]-byHand[s]) > 1e-12 {
+				t.Errorf("set %d: effects at the means at %s = %g, want the mean over the sets %g", k+1, or.Design.Sources[s].Name, p[s], byHand[s])
+			}
+		}
+		if s != 0 && math.Abs(pf.base[s]-byHand[s]) > 1e-12 {
+			t.Errorf("prediction grid holds %s at %g, want the mean over the sets %g", or.Design.Sources[s].Name, pf.base[s], byHand[s])
+		}
+	}
+	if h := pf.HeldAt(); !strings.Contains(h, "means over the rows of all 5 imputed sets") {
+		t.Errorf("grid: %s", h)
+	}
 	if or.NewRows == nil || or.NewRows.Error != "" || or.NewRows.DF == nil {
 		t.Fatalf("predictions %+v", or.NewRows)
 	}

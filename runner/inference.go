@@ -298,23 +298,32 @@ func sourceEffects(or *OutcomeResult, res *fit.Result, raw []float64, n int, off
 func (or *OutcomeResult) binarySource(s int) bool { return binarySource(or.Design, or.Data, s) }
 
 // representative is one raw row: numeric columns at their (weighted)
-// means over the rows used, categorical columns at their reference level,
-// then the values of the plan's profile (withProfile).
+// means over the rows used (usedRows: on imputed data the rows of every
+// imputed set), categorical columns at their reference level, then the
+// values of the plan's profile (withProfile). The one point of the
+// prediction grid, of the effects at the means and at a profile, and of
+// the new rows' profile.
 func (or *OutcomeResult) representative(profile []plan.ProfileValue, withProfile bool) []float64 {
 	dz := or.Design
 	S := len(dz.Sources)
 	raw := make([]float64, S)
+	sets := or.usedRows()
 	for s, src := range dz.Sources {
 		if src.Cat != nil {
 			_, ref := dz.Coded(s)
 			raw[s] = float64(dz.Level(s, ref))
 			continue
 		}
-		col := make([]float64, or.Data.N)
-		for i := range col {
-			col[i] = or.Data.X[i*S+s]
+		var col, w []float64
+		for _, ds := range sets {
+			for i := 0; i < ds.N; i++ {
+				col = append(col, ds.X[i*S+s])
+			}
+			if ds.Weights != nil {
+				w = append(w, ds.Weights...)
+			}
 		}
-		raw[s] = weightedMean(col, or.Data.Weights)
+		raw[s] = weightedMean(col, w)
 	}
 	if withProfile {
 		for _, a := range profile {
@@ -332,14 +341,36 @@ func (or *OutcomeResult) representative(profile []plan.ProfileValue, withProfile
 	return raw
 }
 
+// usedRows are the data sets whose rows the means of representative and
+// meanOffset are over: every imputed set on imputed data (the same point
+// for every set's fit, which pooling needs), else the rows used.
+func (or *OutcomeResult) usedRows() []*data.Dataset {
+	if or.Imputed != nil && len(or.Imputed.Data) > 0 {
+		return or.Imputed.Data
+	}
+	return []*data.Dataset{or.Data}
+}
+
+// meanOffset is the (weighted) mean offset over usedRows.
+func (or *OutcomeResult) meanOffset() float64 {
+	var off, w []float64
+	for _, ds := range or.usedRows() {
+		off = append(off, ds.Offset...)
+		if ds.Weights != nil {
+			w = append(w, ds.Weights...)
+		}
+	}
+	return weightedMean(off, w)
+}
+
 // atPoint is the raw row of marginal effects at one point, kind means or
 // profile (representative), and its offset: the (weighted) mean offset
-// over the rows used, nil without an offset.
+// over the rows used (meanOffset), nil without an offset.
 func (or *OutcomeResult) atPoint(profile []plan.ProfileValue, kind string) ([]float64, []float64) {
 	raw := or.representative(profile, kind == "profile")
 	var off []float64
 	if or.Data.Offset != nil {
-		off = []float64{weightedMean(or.Data.Offset, or.Data.Weights)}
+		off = []float64{or.meanOffset()}
 	}
 	return raw, off
 }

@@ -161,6 +161,15 @@ func TestPooledJackknife(t *testing.T) {
 	}) {
 		t.Errorf("no few-cluster warning naming the complete-data degrees of freedom in %q", or.Notes)
 	}
+	// check counts the rows as run does: each imputed set's 300 rows, not
+	// the original file's complete rows (about three quarters of them).
+	warns, err := CheckData(planIn(t, dir, plan("{file: orig.csv, cluster: site, imputed: {file: stacked.csv, column: imp}}")))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !slices.ContainsFunc(warns, func(w string) bool { return strings.Contains(w, `column "site" holds 8 clusters in the 300 rows used`) }) {
+		t.Errorf("check's warnings count other rows than run's: %q", warns)
+	}
 	sets := make([]impute.Set, m)
 	for k := range sets {
 		one := runPlan(t, planIn(t, dir, plan(fmt.Sprintf("{file: imp%d.csv, cluster: site}", k+1))), 0).Outcomes[0].Chosen.Result

@@ -58,7 +58,7 @@ func (or *OutcomeResult) NewProfile(focus string, fixed map[string]string) (*Pro
 		pf.fixed = append(pf.fixed, c)
 	}
 	if pf.hasOff {
-		pf.offset = weightedMean(or.Data.Offset, or.Data.Weights)
+		pf.offset = or.meanOffset()
 	}
 	if dz.Sources[s].Cat != nil {
 		pf.Categorical = true
@@ -148,10 +148,14 @@ func (pf *Profile) HeldAt() string {
 		parts = append(parts, fmt.Sprintf("%s %s", src.Name, numfmt.Num(pf.base[s])))
 	}
 	s := "no other predictor"
+	over := "the rows used"
+	if sets := pf.or.usedRows(); len(sets) > 1 {
+		over = fmt.Sprintf("the rows of all %d imputed sets", len(sets))
+	}
 	if len(parts) > 0 {
-		s = "the other predictors at their means over the rows used (" + strings.Join(parts, ", ") + ")"
+		s = "the other predictors at their means over " + over + " (" + strings.Join(parts, ", ") + ")"
 		if pf.hasCategorical() {
-			s = "the other predictors at their means over the rows used, categorical ones at the level shown (" + strings.Join(parts, ", ") + ")"
+			s = "the other predictors at their means over " + over + ", categorical ones at the level shown (" + strings.Join(parts, ", ") + ")"
 		}
 	}
 	if pf.hasOff {

@@ -681,7 +681,7 @@ func (env *ruleEnv) points(r plan.Rule) ([]float64, []float64, pointSet, error) 
 	}
 	var off []float64
 	if d.Offset != nil {
-		m := weightedMean(d.Offset, d.Weights)
+		m := env.or.meanOffset()
 		off = make([]float64, n)
 		for i := range off {
 			off[i] = m
