@@ -35,7 +35,7 @@ func writeOverallFit(d *doc, or *runner.OutcomeResult) {
 		// none was pooled.
 		d.p("On imputed data both models were fitted on each of the %d imputed sets. LL₀ and each pseudo-R² are the means over the sets of each set's value, the point estimate of Rubin's rules; they have no pooled standard error.", or.Imputed.M)
 	} else if or.Imputed != nil {
-		d.p("On imputed data both models were fitted on each of the %d imputed sets. The likelihood-ratio test is pooled by D3 (Meng and Rubin 1992; the thresholds-only model at the mean of the sets' thresholds, the candidate at its pooled estimates): the column shows k F and the p-value comes from F(k, v), v in decisions.json. LL₀ and each pseudo-R² are the means over the sets of each set's value, the point estimate of Rubin's rules; they have no pooled standard error.", or.Imputed.M)
+		d.p("On imputed data both models were fitted on each of the %d imputed sets. The likelihood-ratio test is pooled by D3 (Meng and Rubin 1992; the thresholds-only model at the mean of the sets' thresholds, the candidate at its pooled estimates): the column shows its F statistic on k and v degrees of freedom, F(k, v) = F, and the p-value is that of F(k, v). LL₀ and each pseudo-R² are the means over the sets of each set's value, the point estimate of Rubin's rules; they have no pooled standard error.", or.Imputed.M)
 	}
 	var rows [][]string
 	for _, o := range or.Overall {
@@ -49,16 +49,22 @@ func writeOverallFit(d *doc, or *runner.OutcomeResult) {
 		}
 		row := []string{model, numfmt.Fixed(o.NullLogLik, 3)}
 		if o.LR.OK {
-			row = append(row, numfmt.Stat(o.LR.Chi2), fmt.Sprint(o.LR.DF), numfmt.PValue(o.LR.P))
+			row = append(append(row, statCells(o.LR, pooled)...), numfmt.PValue(o.LR.P))
 		} else if o.LR.Negative {
-			row = append(row, numfmt.Stat(o.LR.Chi2), fmt.Sprint(o.LR.DF), "none (below the table)")
+			row = append(append(row, statCells(o.LR, pooled)...), "none (below the table)")
 		} else {
-			row = append(row, "not a test", "", "")
+			row = append(append(row, "not a test"), emptyStat(pooled)[1:]...)
+			row = append(row, "")
 		}
 		row = append(row, numfmt.Fixed(o.McFadden, 4), numfmt.Fixed(o.CoxSnell, 4), numfmt.Fixed(o.Nagelkerke, 4), mz)
 		rows = append(rows, row)
 	}
-	d.captioned("Overall fit: each candidate against its thresholds-only model (LL₀ its log-likelihood), and pseudo-R²").table([]string{"Model", "LL₀", "LR chi-square", "df", "p", "McFadden", "Cox-Snell", "Nagelkerke", "McKelvey-Zavoina"}, rows)
+	head := []string{"Model", "LL₀", "LR chi-square", "df", "p", "McFadden", "Cox-Snell", "Nagelkerke", "McKelvey-Zavoina"}
+	if pooled {
+		head = slices.Delete(head, 2, 4)
+		head = slices.Insert(head, 2, "LR test")
+	}
+	d.captioned("Overall fit: each candidate against its thresholds-only model (LL₀ its log-likelihood), and pseudo-R²").table(head, rows)
 	for _, o := range or.Overall {
 		if !o.LR.OK && !o.LR.Negative && o.LR.Reason != "" {
 			d.p("The likelihood-ratio statistics are not tests here: %s.", o.LR.Reason)

@@ -9,6 +9,7 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -39,10 +40,96 @@ tests: {parallel_lines: [lr, wald, score, brant]}
 rules:
   - choose: {by: bic}
 inference:
+  hypotheses: ["x1 = 0", "x1 = 0; x2 = 0"]
   marginal_effects: [average, means]
   predict: new.csv
 `
 	return renderSource(t, dir, src, 2)
+}
+
+// TestImputedTestsShowF: a test pooled over imputed sets is an F test on
+// two degrees of freedom, and every table of tests shows it so, "F(k, v)
+// = F" under the column Statistic (not its k F under a Chi-square
+// header), as do the CSV tables (f, df, df2). Each displayed F, k and v
+// give back the displayed p-value through gonum's F distribution (to the
+// rounding of the display), and each CSV row to 1e-6 (gonum's F tail
+// with a denominator of millions of degrees of freedom is good to
+// about 1e-8).
+func TestImputedTestsShowF(t *testing.T) {
+	files := runImputed(t)
+	md := string(files["report.md"])
+	for _, bad := range []string{"Chi-square |", "| LR chi-square |", "the column shows k F", "as k F with"} {
+		if strings.Contains(md, bad) {
+			t.Errorf("report.md on imputed data still shows %q", bad)
+		}
+	}
+	hasAll(t, "report.md", md, "| Test | Statistic | p |", "| Restricted within full | Statistic | p |",
+		"| Model | LL₀ | LR test | p | McFadden |", "| 95% high | Statistic | p |")
+	row := regexp.MustCompile(`\| F\((\d+), ([0-9.]+|inf)\) = ([0-9.]+) \| (<?[0-9.]+) \|`)
+	rows := row.FindAllStringSubmatch(md, -1)
+	if len(rows) < 10 {
+		t.Fatalf("%d table cells F(k, v) = F with their p-value, want the parallel-lines, nested, overall and hypothesis tests", len(rows))
+	}
+	for _, m := range rows {
+		k, _ := strconv.Atoi(m[1])
+		v := math.Inf(1)
+		if m[2] != "inf" {
+			v, _ = strconv.ParseFloat(m[2], 64)
+		}
+		f, _ := strconv.ParseFloat(m[3], 64)
+		if strings.HasPrefix(m[4], "<") {
+			continue
+		}
+		p, _ := strconv.ParseFloat(m[4], 64)
+		// p from the displayed F on F(k, v); the display rounds F to 3
+		// decimals and v to 1, so the p-values agree to about 1e-3.
+		if got := fTail(f, k, v); math.Abs(got-p) > 2e-3 {
+			t.Errorf("%s: p of the displayed F is %.4f", m[0], got)
+		}
+	}
+	for _, name := range []string{"table-tests-y.csv", "table-models-y.csv", "table-term-tests-y.csv"} {
+		lines := strings.Split(strings.TrimSpace(string(files[name])), "\n")
+		head := strings.Split(lines[0], ",")
+		fi, di := slices.Index(head, "f"), slices.Index(head, "df")
+		if name == "table-models-y.csv" {
+			fi, di = slices.Index(head, "lr_f"), slices.Index(head, "lr_df")
+		}
+		if fi < 0 || head[di+1] != head[di]+"2" || slices.Contains(head, "chi2") || slices.Contains(head, "lr_chi2") {
+			t.Errorf("%s header on imputed data: %s", name, lines[0])
+			continue
+		}
+		pi := slices.IndexFunc(head, func(h string) bool { return h == "p" || h == "lr_p" })
+		checked := 0
+		for _, l := range lines[1:] {
+			c := strings.Split(l, ",")
+			if len(c) != len(head) || c[fi] == "" {
+				continue
+			}
+			f, _ := strconv.ParseFloat(c[fi], 64)
+			k, _ := strconv.Atoi(c[di])
+			v := math.Inf(1)
+			if c[di+1] != "" {
+				v, _ = strconv.ParseFloat(c[di+1], 64)
+			}
+			p, _ := strconv.ParseFloat(c[pi], 64)
+			if got := fTail(f, k, v); math.Abs(got-p) > 1e-6*math.Max(p, 1e-3) {
+				t.Errorf("%s: p %g, F(%d, %g) = %g gives %g: %s", name, p, k, v, f, got, l)
+			}
+			checked++
+		}
+		if checked == 0 {
+			t.Errorf("%s: no pooled test checked", name)
+		}
+	}
+}
+
+// fTail is P(F > f) on F(k, v) from gonum (v infinite: chi-square(k) of
+// k f).
+func fTail(f float64, k int, v float64) float64 {
+	if math.IsInf(v, 1) {
+		return distuv.ChiSquared{K: float64(k)}.Survival(f * float64(k))
+	}
+	return distuv.F{D1: float64(k), D2: v}.Survival(f)
 }
 
 // TestImputedReport: on imputed data the report shows the pooled marginal

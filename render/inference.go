@@ -45,14 +45,14 @@ func writeHypotheses(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		d.p("The standard errors are cluster-robust, from G = %s clusters: the p-value of a hypothesis of q restrictions is that of W (G-q)/((G-1) q) on F(q, G-q), W the Wald statistic (column Chi-square) and q its df, and an estimate's interval is from t on G-1 = %s degrees of freedom.", numfmt.Num(fdf), numfmt.Num(fdf-1))
 	}
 	if pooled {
-		d.p("On imputed data an estimate is pooled by Rubin's rules, its interval from t on the Barnard-Rubin degrees of freedom.")
+		d.p("On imputed data an estimate is pooled by Rubin's rules, its interval from t on the Barnard-Rubin degrees of freedom; each test is pooled by D1 and shown as its F statistic on q and v degrees of freedom, F(q, v) = F, with the p-value of that F distribution.")
 	}
 	at := slices.IndexFunc(or.Hypotheses, func(h runner.HypothesisResult) bool { return h.HoldsAt != "" })
 	where := at >= 0
 	if where {
 		d.p("%s", holdsAtSentence(or.Hypotheses[at].Text, or.Hypotheses[at].HoldsAt))
 	}
-	head := []string{"Hypothesis", "Plan line", "Model", "Estimate", "Std. error", pct(level) + " low", pct(level) + " high", "Chi-square", "df", "p"}
+	head := append([]string{"Hypothesis", "Plan line", "Model", "Estimate", "Std. error", pct(level) + " low", pct(level) + " high"}, testHead("", pooled)[1:]...)
 	if adjusted != "" {
 		head = append(head, "p, "+adjusted)
 		d.p("The p-values in the chosen model are also given adjusted for multiplicity (%s) over every hypothesis of every outcome, each in its chosen model; the run notes give the size of the family.", adjusted)
@@ -75,12 +75,12 @@ func writeHypotheses(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			row = append(row[:2], append([]string{md(h.HoldsAt)}, row[2:]...)...)
 		}
 		if !h.Test.OK {
-			row = append(row, "", "", "not computed: "+h.Test.Reason)
+			row = append(append(row, emptyStat(pooled)...), "not computed: "+h.Test.Reason)
 		} else {
 			if h.Test.Pooled != "" {
 				row[2] += " (pooled, " + h.Test.Pooled + ")"
 			}
-			row = append(row, numfmt.Stat(h.Test.Chi2), fmt.Sprint(h.Test.DF), numfmt.PValue(h.Test.P))
+			row = append(append(row, statCells(h.Test, pooled)...), numfmt.PValue(h.Test.P))
 		}
 		if adjusted != "" {
 			a := ""

@@ -32,12 +32,13 @@ func writeTests(d *doc, or *runner.OutcomeResult) {
 		var rows [][]string
 		var warned poolingWarnings
 		var fG float64 // G of the tests referred to F on a cluster-robust covariance
+		pooled := or.Imputed != nil
 		row := func(label string, t fit.Test) []string {
 			warned.add(label, t)
 			if t.FRef {
 				fG = t.DF2 + float64(t.DF)
 			}
-			return testRow(label, t)
+			return testRow(label, t, pooled)
 		}
 		for _, t := range tb.Global {
 			rows = append(rows, row(testLabel(t.Name)+" (all predictors)", t))
@@ -48,7 +49,7 @@ func writeTests(d *doc, or *runner.OutcomeResult) {
 			}
 		}
 		if len(rows) > 0 {
-			d.captioned(fmt.Sprintf("Parallel-lines tests, %s %s", tb.Approach, tb.Link)).table([]string{"Test", "Chi-square", "df", "p"}, rows)
+			d.captioned(fmt.Sprintf("Parallel-lines tests, %s %s", tb.Approach, tb.Link)).table(testHead("Test", pooled), rows)
 		}
 		if fG > 0 {
 			d.p("A Wald test on the cluster-robust covariance shows its statistic W (column Chi-square) and its q restrictions (df); its p-value is that of F = W (G-q)/((G-1) q) on F(q, G-q), G = %s clusters, shown beside its name.", numfmt.Num(fG))
@@ -62,7 +63,7 @@ func writeTests(d *doc, or *runner.OutcomeResult) {
 		}
 		if len(rows) > 0 {
 			d.p("Nested likelihood-ratio tests:")
-			d.captioned(fmt.Sprintf("Nested likelihood-ratio tests, %s %s", tb.Approach, tb.Link)).table([]string{"Restricted within full", "Chi-square", "df", "p"}, rows)
+			d.captioned(fmt.Sprintf("Nested likelihood-ratio tests, %s %s", tb.Approach, tb.Link)).table(testHead("Restricted within full", pooled), rows)
 		}
 		warned.write(d)
 	}
@@ -85,18 +86,52 @@ func (w poolingWarnings) write(d *doc) {
 	}
 }
 
-func testRow(label string, t fit.Test) []string {
+// testRow is a test's row of a table of tests (label, statistic cells,
+// p); pooled: the table is of tests pooled over imputed sets (testHead).
+func testRow(label string, t fit.Test, pooled bool) []string {
 	if t.Negative { // the statistic shown, with why it has no p-value
-		return []string{label, numfmt.Stat(t.Chi2), fmt.Sprint(t.DF), t.Reason}
+		return append(append([]string{label}, statCells(t, pooled)...), t.Reason)
 	}
 	if !t.OK {
-		return []string{label, "", "", "not computed: " + t.Reason}
+		return append(append([]string{label}, emptyStat(pooled)...), "not computed: "+t.Reason)
 	}
 	if t.Pooled != "" {
 		label += " (pooled, " + t.Pooled + ")"
 	}
 	label += fReference(t)
-	return []string{label, numfmt.Stat(t.Chi2), fmt.Sprint(t.DF), numfmt.PValue(t.P)}
+	return append(append([]string{label}, statCells(t, pooled)...), numfmt.PValue(t.P))
+}
+
+// testHead is the header of a table of tests whose first column is
+// first: the chi-square statistic and its df, or, for tests pooled over
+// imputed sets (F tests on two degrees of freedom, runner.FStatistic),
+// the one column Statistic, "F(k, v) = F".
+func testHead(first string, pooled bool) []string {
+	if pooled {
+		return []string{first, "Statistic", "p"}
+	}
+	return []string{first, "Chi-square", "df", "p"}
+}
+
+// statCells are a test's cells under testHead's statistic columns: the
+// chi-square and its df, or in a table of pooled tests "F(k, v) = F" (a
+// test there that is not pooled: "chi2(k) = x").
+func statCells(t fit.Test, pooled bool) []string {
+	switch {
+	case !pooled:
+		return []string{numfmt.Stat(t.Chi2), fmt.Sprint(t.DF)}
+	case t.Pooled != "":
+		return []string{runner.FStatistic(t)}
+	}
+	return []string{fmt.Sprintf("chi2(%d) = %s", t.DF, numfmt.Stat(t.Chi2))}
+}
+
+// emptyStat are statCells' empty cells, for a test not computed.
+func emptyStat(pooled bool) []string {
+	if pooled {
+		return []string{""}
+	}
+	return []string{"", ""}
 }
 
 // fReference says, after a test's label, that a Wald statistic W made on a

@@ -39,10 +39,10 @@ rules:
 	const why = "not computed: not valid with sampling weights: the fits maximize a pseudo-likelihood; use the Wald test"
 	hasAll(t, "report.md", md,
 		"| Standard errors | observed in the plan; sandwich used, as sampling weights require |",
-		"| Likelihood ratio (all predictors) |  |  | "+why+" |",
-		"| Score (all predictors) |  |  | "+why+" |",
-		"| Brant (all predictors) |  |  | "+why+" |",
-		"| cumulative/parallel/logit within cumulative/nonparallel/logit |  |  | "+why+" |",
+		"| Likelihood ratio (all predictors) |  | "+why+" |",
+		"| Score (all predictors) |  | "+why+" |",
+		"| Brant (all predictors) |  | "+why+" |",
+		"| cumulative/parallel/logit within cumulative/nonparallel/logit |  | "+why+" |",
 		"The parallel-lines assumption was tested by Wald tests (alpha = 0.05), overall and for each predictor.",
 		"The likelihood-ratio, score and Brant tests of the parallel-lines assumption the plan asks for were not computed: with sampling weights",
 	)

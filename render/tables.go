@@ -44,6 +44,28 @@ func csvShare(n, of int) string {
 	return csvNum(float64(n) / float64(of))
 }
 
+// csvStat is a test's statistic in a CSV table: the chi-square, or on
+// imputed data (imputed) a pooled test's F statistic, empty for a test
+// there that is not pooled (the note gives its chi-square).
+func csvStat(t fit.Test, imputed bool) string {
+	switch {
+	case !imputed:
+		return csvNum(t.Chi2)
+	case t.Pooled != "":
+		return csvNum(t.Chi2 / float64(t.DF))
+	}
+	return ""
+}
+
+// csvDF2 is a pooled test's denominator degrees of freedom, empty when
+// infinite (or for a test that is not pooled).
+func csvDF2(t fit.Test) string {
+	if t.Pooled != "" && t.DF2 > 0 {
+		return csvNum(t.DF2)
+	}
+	return ""
+}
+
 func csvBytes(head []string, rows [][]string) []byte {
 	var b bytes.Buffer
 	w := csv.NewWriter(&b)
@@ -129,7 +151,13 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 			append([]string{"rows", "share"}, mt.Columns...), rows)
 	}
 
-	// Every candidate fit with its overall fit.
+	// Every candidate fit with its overall fit. On imputed data every test
+	// is an F test on two degrees of freedom (csvStat).
+	imputed := or.Imputed != nil
+	lrHead := []string{"lr_chi2", "lr_df", "lr_p"}
+	if imputed {
+		lrHead = []string{"lr_f", "lr_df", "lr_df2", "lr_p"}
+	}
 	rows = nil
 	for _, f := range or.Fits {
 		if f.Auxiliary {
@@ -143,20 +171,29 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		res := f.Result
 		row = append(row, string(res.Status), csvNum(res.LogLik), strconv.Itoa(res.NParams), csvNum(res.AIC), csvNum(res.BIC), strconv.Itoa(res.NegativeRows))
 		if ov := or.OverallOf(f.ID); ov != nil {
-			lr := []string{"", "", ""}
+			lr := make([]string, len(lrHead))
 			if ov.LR.OK {
-				lr = []string{csvNum(ov.LR.Chi2), strconv.Itoa(ov.LR.DF), csvNum(ov.LR.P)}
+				lr = []string{csvStat(ov.LR, imputed), strconv.Itoa(ov.LR.DF), csvNum(ov.LR.P)}
+				if imputed {
+					lr = slices.Insert(lr, 2, csvDF2(ov.LR))
+				}
 			}
 			row = append(row, csvNum(ov.NullLogLik))
 			row = append(row, lr...)
 			row = append(row, csvNum(ov.McFadden), csvNum(ov.CoxSnell), csvNum(ov.Nagelkerke), csvNum(ov.McKelveyZavoina))
 		} else {
-			row = append(row, "", "", "", "", "", "", "", "")
+			row = append(row, make([]string, 5+len(lrHead))...)
 		}
 		rows = append(rows, row)
 	}
-	add("models", "every candidate model: status, log-likelihood, criteria, likelihood-ratio test against its thresholds-only model, pseudo-R2",
-		[]string{"model", "verdict", "status", "loglik", "n_params", "aic", "bic", "rows_negative_probability", "null_loglik", "lr_chi2", "lr_df", "lr_p", "mcfadden_r2", "cox_snell_r2", "nagelkerke_r2", "mckelvey_zavoina_r2"}, rows)
+	about = "every candidate model: status, log-likelihood, criteria, likelihood-ratio test against its thresholds-only model, pseudo-R2"
+	if imputed && slices.ContainsFunc(or.Overall, func(o runner.OverallRecord) bool { return o.LR.Pooled != "" }) {
+		about += " (on imputed data the test is pooled by D3: lr_f its F statistic on lr_df and lr_df2 degrees of freedom, lr_df2 empty when infinite, lr_p from that F distribution; log-likelihoods, criteria and pseudo-R2 are means over the sets)"
+	} else if imputed {
+		about += " (on imputed data log-likelihoods, criteria and pseudo-R2 are means over the sets; lr_f, lr_df2 and lr_p are empty: the statistic is not a test here)"
+	}
+	add("models", about,
+		append(append([]string{"model", "verdict", "status", "loglik", "n_params", "aic", "bic", "rows_negative_probability", "null_loglik"}, lrHead...), "mcfadden_r2", "cox_snell_r2", "nagelkerke_r2", "mckelvey_zavoina_r2"), rows)
 
 	// Estimates of every usable candidate.
 	rows = nil
@@ -237,18 +274,23 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 
 	// Tests: parallel lines, nested, overall, goodness of fit, hypotheses.
 	rows = nil
+	testsHead := []string{"family", "approach", "link", "scope", "test", "chi2", "df", "p", "note"}
+	testsAbout := "every test of the report: parallel lines, nested likelihood ratios, each model against its thresholds-only model, the Lipsitz and Pulkstenis-Robinson tests, the plan's hypotheses, the tests of each term of the chosen model"
+	if imputed {
+		testsHead = []string{"family", "approach", "link", "scope", "test", "f", "df", "df2", "p", "note"}
+		testsAbout += "; on imputed data each test is pooled over the sets (D1, D2 or D3, in note): f its F statistic on df and df2 degrees of freedom (df2 empty when infinite), p from that F distribution"
+	}
 	testRow := func(family, approach, link, scope string, t fit.Test) {
+		row := []string{family, approach, link, scope, t.Name}
 		if !t.OK {
-			rows = append(rows, []string{family, approach, link, scope, t.Name, "", "", "", t.Reason})
+			rows = append(rows, append(append(row, make([]string, len(testsHead)-6)...), t.Reason))
 			return
 		}
 		note := ""
 		if t.Pooled != "" {
-			df2 := "inf"
-			if t.DF2 > 0 {
-				df2 = csvNum(t.DF2)
-			}
-			note = "pooled over imputed sets (" + t.Pooled + "): chi2 is df x F, p from F(df, " + df2 + ")"
+			note = "pooled over imputed sets (" + t.Pooled + ")"
+		} else if imputed {
+			note = fmt.Sprintf("not pooled: chi2 = %s on df", csvNum(t.Chi2))
 		}
 		if t.Warning != "" {
 			note += "; " + t.Warning
@@ -256,7 +298,11 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		if t.FRef {
 			note = fRefNote(t)
 		}
-		rows = append(rows, []string{family, approach, link, scope, t.Name, csvNum(t.Chi2), strconv.Itoa(t.DF), csvNum(t.P), note})
+		row = append(row, csvStat(t, imputed), strconv.Itoa(t.DF))
+		if imputed {
+			row = append(row, csvDF2(t))
+		}
+		rows = append(rows, append(row, csvNum(t.P), note))
 	}
 	for _, tb := range or.Tests {
 		for _, t := range tb.Global {
@@ -288,8 +334,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		testRow("term", "", "", or.Chosen.ID+": "+tt.Term, tt.Wald)
 		testRow("term", "", "", or.Chosen.ID+": "+tt.Term, tt.LR)
 	}
-	add("tests", "every test of the report: parallel lines, nested likelihood ratios, each model against its thresholds-only model, the Lipsitz and Pulkstenis-Robinson tests, the plan's hypotheses, the tests of each term of the chosen model",
-		[]string{"family", "approach", "link", "scope", "test", "chi2", "df", "p", "note"}, rows)
+	add("tests", testsAbout, testsHead, rows)
 
 	// The decision log: first the models no rule saw (order 0), then
 	// each rule's verdicts.
@@ -308,11 +353,14 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		return out
 	}
 	if len(or.TermTests) > 0 {
-		about := "the Wald and likelihood-ratio tests of each term of the chosen model (tested_with: the interactions containing the term, tested with it; restricted_model: the refit without them; on imputed data chi2 is df x F, p from F(df, df2), df2 empty when infinite; note: why a test was not computed)"
+		about := "the Wald and likelihood-ratio tests of each term of the chosen model (tested_with: the interactions containing the term, tested with it; restricted_model: the refit without them; note: why a test was not computed)"
+		if imputed {
+			about = strings.TrimSuffix(about, ")") + "; on imputed data f is the pooled F statistic on df and df2 degrees of freedom, df2 empty when infinite, p from that F distribution)"
+		}
 		if or.Chosen.Result.RefDF > 0 && or.Chosen.Result.DF == nil {
 			about = strings.TrimSuffix(about, ")") + "; on the cluster-robust covariance of G clusters a Wald chi2 is referred as chi2 (G-df)/((G-1) df) to F(df, df2), df2 = G-df, and note says so)"
 		}
-		add("term-tests", about, termTestHead, termTestRows(or))
+		add("term-tests", about, termTestHead(imputed), termTestRows(or))
 	}
 	// Marginal effects.
 	if len(or.Marginal) > 0 {

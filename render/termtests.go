@@ -102,12 +102,19 @@ func termStatistic(t fit.Test) []string {
 	return []string{runner.TestStatistic(t), numfmt.PValue(t.P)}
 }
 
-// termTestHead is the header of table-term-tests.
-var termTestHead = []string{"model", "term", "tested_with", "columns", "test", "chi2", "df", "df2", "p", "pooled", "restricted_model", "note"}
+// termTestHead is the header of table-term-tests: on imputed data the
+// statistic is the pooled F (column f), else the chi-square.
+func termTestHead(imputed bool) []string {
+	stat := "chi2"
+	if imputed {
+		stat = "f"
+	}
+	return []string{"model", "term", "tested_with", "columns", "test", stat, "df", "df2", "p", "pooled", "restricted_model", "note"}
+}
 
 // termTestRows are the rows of table-term-tests: one per term and test.
-// On imputed data chi2 is df x F and p comes from F(df, df2) (df2 empty:
-// infinite).
+// On imputed data the statistic is F and p comes from F(df, df2) (df2
+// empty: infinite).
 func termTestRows(or *runner.OutcomeResult) [][]string {
 	var rows [][]string
 	for _, tt := range or.TermTests {
@@ -130,7 +137,7 @@ func termTestRows(or *runner.OutcomeResult) [][]string {
 					note = append(note, n)
 				}
 			}
-			rows = append(rows, append(row, csvNum(t.Chi2), strconv.Itoa(t.DF), df2, csvNum(t.P), t.Pooled, restricted, strings.Join(note, "; ")))
+			rows = append(rows, append(row, csvStat(t, or.Imputed != nil), strconv.Itoa(t.DF), df2, csvNum(t.P), t.Pooled, restricted, strings.Join(note, "; ")))
 		}
 	}
 	return rows

@@ -698,16 +698,35 @@ func pooledWaldOn(res *fit.Result, pl *impute.Pooled, rows [][]float64, c0 []flo
 	return fTest(fit.TestWald, t.Referred(df), math.NaN(), math.NaN())
 }
 
-// fTest records a pooled F test in the test record: Chi2 holds DF x F.
+// fTest records a pooled F test in the test record: F the statistic,
+// Reference its distribution F(DF, DF2), and Chi2 DF x F (what a reader
+// of the record that takes it for a chi-square would compare).
 func fTest(kind fit.TestKind, t impute.FTest, llr, llf float64) fit.Test {
-	out := fit.Test{Name: kind.String(), OK: true, Chi2: t.F * float64(t.DF1), DF: t.DF1, P: t.P, Pooled: t.Method, DF2: t.DF2, Warning: t.Warnings}
+	out := fit.Test{Name: kind.String(), OK: true, Chi2: t.F * float64(t.DF1), DF: t.DF1, P: t.P, Pooled: t.Method, DF2: t.DF2, Warning: t.Warnings, F: t.F}
 	if !math.IsNaN(llr) {
 		out.LLRestricted, out.LLFull = llr, llf
 	}
 	if math.IsInf(out.DF2, 1) {
 		out.DF2 = 0 // infinite: the F statistic is a chi-square over DF
 	}
+	out.Reference = "F(" + strconv.Itoa(out.DF) + ", " + pooledDF2(out) + ")"
 	return out
+}
+
+// pooledDF2 writes a pooled test's denominator degrees of freedom to one
+// decimal, "inf" when infinite.
+func pooledDF2(t fit.Test) string {
+	if t.DF2 > 0 {
+		return numfmt.Fixed(t.DF2, 1)
+	}
+	return "inf"
+}
+
+// FStatistic writes a test pooled over imputed sets as its F statistic on
+// both degrees of freedom, "F(2, 15.2) = 2.107", the one form of a pooled
+// test's statistic in sentences and tables.
+func FStatistic(t fit.Test) string {
+	return fmt.Sprintf("F(%d, %s) = %s", t.DF, pooledDF2(t), numfmt.Stat(t.Chi2/float64(t.DF)))
 }
 
 // runImputedOutcome analyses one outcome on multiply imputed data: the
@@ -844,11 +863,7 @@ func TestStatistic(t fit.Test) string {
 	if t.Pooled == "" {
 		return fmt.Sprintf("chi2(%d) = %s", t.DF, numfmt.Stat(t.Chi2))
 	}
-	df2 := "inf"
-	if t.DF2 > 0 {
-		df2 = numfmt.Fixed(t.DF2, 1)
-	}
-	return fmt.Sprintf("F(%d, %s) = %s (pooled, %s)", t.DF, df2, numfmt.Stat(t.Chi2/float64(t.DF)), t.Pooled)
+	return FStatistic(t) + " (pooled, " + t.Pooled + ")"
 }
 
 // pinImputed pins the imputed data files for the run (every reader parses

@@ -106,7 +106,9 @@ type Test struct {
 	// FRef: a Wald test on a cluster-robust covariance of G clusters (the
 	// clustered sandwich or the delete-one-cluster jackknife; Result.RefDF
 	// = G-1): F = Chi2 (G-q)/((G-1) q), q = DF, is referred to F(DF, DF2),
-	// DF2 = G-q (waldTest); Reference names that distribution.
+	// DF2 = G-q (waldTest); Reference names that distribution. A test
+	// pooled over imputed sets (Pooled) has F = Chi2/DF and its Reference
+	// too, FRef false.
 	FRef      bool    `json:"f_reference,omitempty"`
 	F         float64 `json:"f,omitempty"`
 	Reference string  `json:"reference,omitempty"`
