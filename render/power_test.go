@@ -180,3 +180,21 @@ func TestPowerChartAxisAroundOneSize(t *testing.T) {
 		}
 	}
 }
+
+// TestTruncationWords: the truncated normal's mean and sd and those of the
+// values a rehearsal drew are both given, each labelled; a power study's
+// record has no values drawn and gives the truncated normal's alone.
+func TestTruncationWords(t *testing.T) {
+	mean, sd := 58.885, 11.241
+	redrawn := 0
+	rec := runner.SimulatedTruncation{Column: "age", StatedMean: 58, StatedSD: 12, Range: []float64{18, 95}, Outside: 0.00145, Mean: 57.977199, SD: 11.904987,
+		Drawn: 300, Redrawn: &redrawn, Values: 300, ValuesMean: &mean, ValuesSD: &sd}
+	s := simulatedTruncationText([]runner.SimulatedTruncation{rec})
+	hasAll(t, "rehearsal", s, "the truncated normal has mean 57.98 and sd 11.9, and the 300 values drawn here have mean 58.88 and sd 11.24")
+	rec.Values, rec.ValuesMean, rec.ValuesSD, rec.Redrawn, rec.Drawn = 0, nil, nil, nil, 0
+	s = simulatedTruncationText([]runner.SimulatedTruncation{rec})
+	hasAll(t, "power study", s, "the truncated normal has mean 57.98 and sd 11.9.")
+	if strings.Contains(s, "values drawn here") {
+		t.Errorf("power study speaks of values drawn: %s", s)
+	}
+}

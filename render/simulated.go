@@ -52,7 +52,8 @@ func writeSimulatedDraws(d *doc, w *runner.SimulatedWeights, ts []runner.Simulat
 // simulatedTruncationText says which numeric columns were drawn from
 // their stated normal distribution truncated to the dictionary's range,
 // how much of it the range leaves out, how many draws were drawn again
-// (a rehearsal's counts), and the mean and sd of the column drawn.
+// (a rehearsal's counts), and the mean and sd of the truncated normal
+// and, in a rehearsal, of the values drawn.
 func simulatedTruncationText(ts []runner.SimulatedTruncation) string {
 	g := func(x float64) string { return strconv.FormatFloat(x, 'g', 4, 64) }
 	share := func(x float64) string { return strconv.FormatFloat(100*x, 'g', 3, 64) + "%" }
@@ -67,9 +68,13 @@ func simulatedTruncationText(ts []runner.SimulatedTruncation) string {
 		case t.Redrawn != nil && t.Drawn > 0:
 			c += fmt.Sprintf("; %d of the %d draws (%s) fell outside and were drawn again", *t.Redrawn, t.Drawn, share(float64(*t.Redrawn)/float64(t.Drawn)))
 		}
-		cols = append(cols, c+fmt.Sprintf("; the column drawn has mean %s and sd %s", g(t.Mean), g(t.SD)))
+		c += fmt.Sprintf("; the truncated normal has mean %s and sd %s", g(t.Mean), g(t.SD))
+		if t.ValuesMean != nil && t.ValuesSD != nil {
+			c += fmt.Sprintf(", and the %d values drawn here have mean %s and sd %s", t.Values, g(*t.ValuesMean), g(*t.ValuesSD))
+		}
+		cols = append(cols, c)
 	}
-	return "Numeric columns with a range in the dictionary were drawn from the stated normal distribution truncated to that range: a draw outside the range was drawn again, from the same seeded stream, so no simulated value lies outside it, and the column drawn has the mean and sd of the truncated normal, not quite those stated (a range that leaves out more than half of the normal is refused). " + strings.Join(cols, ". ") + "."
+	return "Numeric columns with a range in the dictionary were drawn from the stated normal distribution truncated to that range: a draw outside the range was drawn again, from the same seeded stream, so no simulated value lies outside it, and the column is drawn from the truncated normal, whose mean and sd are not quite those stated (a range that leaves out more than half of the normal is refused); the values drawn differ from the truncated normal's mean and sd by chance. " + strings.Join(cols, ". ") + "."
 }
 
 // simulatedClustersText says how the plan's cluster column was simulated:

@@ -34,8 +34,8 @@ type Simulation struct {
 // SimulatedTruncation is a numeric column drawn from the normal of its
 // stated mean and sd truncated to its dictionary range: Outside is the
 // share of that normal outside the range (the share of draws expected to
-// be drawn again), Mean and SD those of the truncated normal (what the
-// column drawn has), Drawn and Redrawn (a rehearsal's data) the draws
+// be drawn again), Mean and SD those of the truncated normal (the
+// distribution the column is drawn from), Drawn and Redrawn (a rehearsal's data) the draws
 // made and, of them, those outside the range and drawn again; a column
 // drawn with stated correlations (Copula) is drawn within the range by
 // the truncated normal's quantile function, nothing drawn again.
@@ -50,6 +50,12 @@ type SimulatedTruncation struct {
 	Copula     bool      `json:"copula,omitempty"`
 	Drawn      int       `json:"draws,omitempty"`
 	Redrawn    *int      `json:"redrawn,omitempty"`
+	// In a rehearsal: the values the simulated file holds (those made
+	// missing left out), their mean and standard deviation, which differ
+	// from the truncated normal's (Mean, SD) by the draws' chance.
+	Values     int      `json:"values,omitempty"`
+	ValuesMean *float64 `json:"values_mean,omitempty"`
+	ValuesSD   *float64 `json:"values_sd,omitempty"`
 }
 
 // SimulatedClusters is how a plan's cluster column was simulated: runs of

@@ -269,6 +269,11 @@ func (s *Sim) TruncationRecord(w *Written, n int) []runner.SimulatedTruncation {
 			redrawn := w.Redrawn[k]
 			rec.Drawn, rec.Redrawn = n+redrawn, &redrawn
 		}
+		if w != nil && k < len(w.Values) && w.Values[k].N > 1 {
+			m := w.Values[k]
+			sd := m.SD()
+			rec.Values, rec.ValuesMean, rec.ValuesSD = m.N, &m.Mean, &sd
+		}
 		out = append(out, rec)
 	}
 	return out
@@ -1097,6 +1102,32 @@ type Written struct {
 	// Redrawn counts, per predictor (Sim.Predictors), the draws of a
 	// normal column outside its range that were drawn again.
 	Redrawn []int
+	// Values, per predictor, are the count, mean and sum of squared
+	// deviations of the values of a normal column with a range as the
+	// file holds them (written to 7 digits; those made missing left out).
+	Values []Moments
+}
+
+// Moments are running moments of a column's values (Welford's updates).
+type Moments struct {
+	N        int
+	Mean, M2 float64
+}
+
+func (m *Moments) add(x float64) {
+	m.N++
+	d := x - m.Mean
+	m.Mean += d / float64(m.N)
+	m.M2 += d * (x - m.Mean)
+}
+
+// SD is the standard deviation of the values (n - 1 in the divisor), NaN
+// below two values.
+func (m Moments) SD() float64 {
+	if m.N < 2 {
+		return math.NaN()
+	}
+	return math.Sqrt(m.M2 / float64(m.N-1))
 }
 
 // WriteCounted is Write, giving also what it wrote (Written). The
@@ -1140,6 +1171,7 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) (Written, error
 	}
 	cells := make([]string, 0, len(h))
 	var missed []int // the columns of s.Missing the current row misses
+	values := make([]Moments, len(s.Predictors))
 	for i := 0; i < n; i++ {
 		s.drawRow(rng, &r)
 		if len(s.perCluster) > 0 {
@@ -1216,6 +1248,15 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) (Written, error
 			cells[at] = csvCell(mc.marker)
 			missed = append(missed, mi)
 		}
+		for k, pr := range s.Predictors {
+			if pr.Kind != "normal" || pr.Range == nil || slices.ContainsFunc(missed, func(mi int) bool {
+				return s.Missing[mi].outcome < 0 && s.Missing[mi].pred == k
+			}) {
+				continue
+			}
+			x, _ := strconv.ParseFloat(cells[len(s.Outcomes)+k], 64)
+			values[k].add(x)
+		}
 		if s.notOutside(&r, missed) {
 			for _, mi := range missed {
 				counts[mi]++
@@ -1243,7 +1284,7 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) (Written, error
 		}
 		bw.WriteByte('\n')
 	}
-	return Written{Missing: counts, Kept: met, Redrawn: slices.Clone(r.redrawn)}, bw.Flush()
+	return Written{Missing: counts, Kept: met, Redrawn: slices.Clone(r.redrawn), Values: values}, bw.Flush()
 }
 
 // drawWeight gives one row's weight as the file holds it: 1 when the

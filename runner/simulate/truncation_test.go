@@ -121,6 +121,12 @@ func TestTruncatedNormalDraws(t *testing.T) {
 	if len(rec) != 1 || rec[0].Column != "x" || rec[0].Redrawn == nil || *rec[0].Redrawn != redrawn || rec[0].Drawn != draws || rec[0].Outside != tr.Outside || rec[0].Mean != tr.Mean || rec[0].Copula {
 		t.Errorf("record %+v", rec)
 	}
+	// The record gives, beside the truncated normal's moments, those of
+	// the values the file holds (sd with n - 1).
+	if v := rec[0]; v.Values != n || v.ValuesMean == nil || v.ValuesSD == nil || math.Abs(*v.ValuesMean-smean) > 1e-9*math.Abs(smean) ||
+		math.Abs(*v.ValuesSD-ssd*math.Sqrt(float64(n)/float64(n-1))) > 1e-7*ssd {
+		t.Errorf("record of the values drawn: %d values, mean %v sd %v; the file's %d values: mean %.9g sd %.9g", v.Values, v.ValuesMean, v.ValuesSD, n, smean, ssd*math.Sqrt(float64(n)/float64(n-1)))
+	}
 	t.Logf("%d of %d draws drawn again (%.5f), tails %.5f; mean %.5f sd %.5f, truncated normal %.5f %.5f", redrawn, draws, share, outside, smean, ssd, tr.Mean, tr.SD)
 }
 
