@@ -3,6 +3,7 @@ package render
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"github.com/go-echarts/go-echarts/v2/charts"
@@ -71,6 +72,17 @@ func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	if chosen != nil {
 		head = append(head, ch.Effects.String()+" (chosen)")
 	}
+	// A column whose term enters an interaction has its slopes where the
+	// terms it interacts with have their columns at 0, as its odds ratios.
+	where := map[string]string{}
+	for _, c := range or.ColumnReadings() {
+		if c.Where != "" {
+			where[c.Column] = c.Where
+		}
+	}
+	if len(where) > 0 {
+		head = slices.Insert(head, 1, "Holds at")
+	}
 	var rows [][]string
 	var cs []*chart
 	var skipped []string
@@ -81,6 +93,9 @@ func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			continue
 		}
 		row := []string{pred}
+		if len(where) > 0 {
+			row = append(row, where[pred])
+		}
 		for m := range est {
 			row = append(row, fmt.Sprintf("%s (%s)", numfmt.Est(est[m]), numfmt.Est(se[m])))
 		}
@@ -89,9 +104,12 @@ func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			row = append(row, chosenCell(chosen, k))
 		}
 		rows = append(rows, row)
-		cs = append(cs, boundaryChart(d, pred, res.Categories, est, se, boundaryQuantiles(res, k, level), level, par, chosen, ch.Effects.String(), k))
+		cs = append(cs, boundaryChart(d, pred, where[pred], res.Categories, est, se, boundaryQuantiles(res, k, level), level, par, chosen, ch.Effects.String(), k))
 	}
 	if len(rows) > 0 {
+		if len(where) > 0 {
+			d.p("A column whose term enters an interaction has its slopes where the terms it interacts with have their columns at 0 (column Holds at, and the chart's subtitle), as its odds ratios do; a slope of an interaction column is the change of a component's slope with a unit of the other.")
+		}
 		d.captioned(fmt.Sprintf("Slopes at each boundary, %s", npID)).table(head, rows)
 	}
 	if len(skipped) > 0 {
@@ -183,7 +201,7 @@ func chosenCell(res *fit.Result, k int) string {
 }
 
 // boundaryChart draws one predictor's slopes across the boundaries.
-func boundaryChart(d *doc, pred string, cats []string, est, se, crit []float64, level float64, par *runner.FitEntry, chosen *fit.Result, chosenLevel string, k int) *chart {
+func boundaryChart(d *doc, pred, holds string, cats []string, est, se, crit []float64, level float64, par *runner.FitEntry, chosen *fit.Result, chosenLevel string, k int) *chart {
 	q := len(cats) - 1
 	bounds := make([]string, q)
 	for m := range bounds {
@@ -215,7 +233,11 @@ func boundaryChart(d *doc, pred string, cats []string, est, se, crit []float64, 
 		}
 		labels = layoutCategories(axisNames, 10, chartTextWidth-50, 130)
 	}
-	fr := &chartFrame{id: d.chartID(), title: pred, subtitle: "slope at each boundary", height: 340 + int(labels.extent-labels.upright(10)),
+	sub := "slope at each boundary"
+	if holds != "" {
+		sub += ", holds at " + holds
+	}
+	fr := &chartFrame{id: d.chartID(), title: pred, subtitle: sub, height: 340 + int(labels.extent-labels.upright(10)),
 		grid: opts.Grid{Left: leftFor(labels, "4%"), Right: "6%", Top: "60", Bottom: "60"}, legend: legend}
 	l := charts.NewLine()
 	l.SetGlobalOptions(append(fr.opts(),
@@ -228,6 +250,9 @@ func boundaryChart(d *doc, pred string, cats []string, est, se, crit []float64, 
 	l.AddSeries(band, lineData(lo), lineStyle(colorEstimate, 1, true, false)...)
 	l.AddSeries(band, lineData(hi), lineStyle(colorEstimate, 1, true, false)...)
 	caption := fmt.Sprintf("%s: nonparallel slope at each boundary with its %s (dashed)", pred, band)
+	if holds != "" {
+		caption = fmt.Sprintf("%s at %s (where its slopes hold, since it enters an interaction): nonparallel slope at each boundary with its %s (dashed)", pred, holds, band)
+	}
 	if chosen != nil {
 		cv := make([]float64, q)
 		for m := range cv {
@@ -245,7 +270,11 @@ func boundaryChart(d *doc, pred string, cats []string, est, se, crit []float64, 
 		l.AddSeries("parallel", lineData(flat), lineStyle(colorParallel, 2, false, false)...)
 		caption += ", and the parallel slope (flat line)"
 	}
-	fig := newFigure(pred+": slope at each boundary", "boundary", "slope")
+	title := pred + ": slope at each boundary"
+	if holds != "" {
+		title += " (at " + holds + ")"
+	}
+	fig := newFigure(title, "boundary", "slope")
 	fig.xNames = axisNames
 	fig.series = append([]figSeries{
 		{name: band, color: colorEstimate, ys: lo, dashed: true, width: 1, legend: true},

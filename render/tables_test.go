@@ -220,3 +220,19 @@ func TestPredictedCSVEveryPanel(t *testing.T) {
 		"predicted probabilities of the chosen model over age (other predictors at their means, categorical ones at their reference level) with",
 		"as age varies, with other predictors at their means, categorical ones at their reference level;")
 }
+
+// TestSlopesSayWhereTheyHold: the slopes across boundaries of a column
+// whose term enters an interaction hold where the terms it interacts
+// with are at 0; the table says so in a column Holds at, as the odds
+// ratios do, and its chart in caption, subtitle and the figure's title.
+func TestSlopesSayWhereTheyHold(t *testing.T) {
+	files := renderPlan(t, goldenPlan, 1)
+	md := string(files["report.md"])
+	hasAll(t, "report.md", md,
+		"| Predictor | Holds at | b[1] very_unsafe/unsafe |",
+		"| pilot | street_type = residential | 1.4072 (0.6661) |",
+		"| female |  | -0.7720 (0.4178) |",
+		"**Figure 2.** pilot at street_type = residential (where its slopes hold, since it enters an interaction): nonparallel slope")
+	hasAll(t, "report.html", string(files["report.html"]), `"subtext":"slope at each boundary, holds at street_type = residential"`)
+	hasAll(t, "figure-2.svg", string(files["figure-2.svg"]), "pilot: slope at each boundary (at street_type = residential)")
+}
