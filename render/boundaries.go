@@ -237,8 +237,8 @@ func boundaryChart(d *doc, pred, holds string, cats []string, est, se, crit []fl
 	if holds != "" {
 		sub += ", holds at " + holds
 	}
-	fr := &chartFrame{id: d.chartID(), title: pred, subtitle: sub, height: 340 + int(labels.extent-labels.upright(10)),
-		grid: opts.Grid{Left: leftFor(labels, "4%"), Right: "6%", Top: "60", Bottom: "60"}, legend: legend}
+	fr := d.frame(chartFrame{title: pred, subtitle: sub, height: 340 + int(labels.extent-labels.upright(10)),
+		grid: opts.Grid{Left: leftFor(labels, "4%"), Right: "6%", Top: "60", Bottom: "60"}, legend: legend})
 	l := charts.NewLine()
 	l.SetGlobalOptions(append(fr.opts(),
 		charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: "boundary", NameLocation: "middle", NameGap: int(labels.extent) + 7,

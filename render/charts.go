@@ -16,7 +16,8 @@ import (
 type chart struct {
 	number  int // figure number: charts are numbered in page order
 	id      string
-	height  int // pixels; the width follows the page
+	mark    string // the first line of the title (doc.mark), or ""
+	height  int    // pixels; the width follows the page
 	caption string
 	option  string  // JSON
 	static  *figure // the same chart as a static image for report.md (nil: none)
@@ -25,6 +26,7 @@ type chart struct {
 // with attaches the static version of the chart.
 func (c *chart) with(f *figure) *chart {
 	c.static = f
+	f.mark = c.mark
 	return c
 }
 
@@ -46,7 +48,7 @@ func newChart(fr *chartFrame, caption string, c echartsChart) *chart {
 	js = strings.ReplaceAll(js, "<", `\u003c`)
 	var n int
 	fmt.Sscanf(fr.id, "chart-%d", &n)
-	return &chart{number: n, id: fr.id, height: fr.height, caption: caption, option: js}
+	return &chart{number: n, id: fr.id, mark: fr.mark, height: fr.height, caption: caption, option: js}
 }
 
 // chartFrame is what every chart of the report shares: its fixed element
@@ -54,7 +56,8 @@ func newChart(fr *chartFrame, caption string, c echartsChart) *chart {
 // its height and the plot area's margins, and its legend.
 type chartFrame struct {
 	id, title, subtitle string
-	height              int // pixels: with a one-line title and subtitle and a one-row legend
+	mark                string // the title's own first line (doc.mark), or ""
+	height              int    // pixels: with a one-line title and subtitle and a one-row legend
 	grid                opts.Grid
 	legend              []string // the legend's entries, at the bottom unless legendRight
 	legendRight         bool     // the legend stands right of the plot, one entry per line
@@ -76,7 +79,7 @@ func (fr *chartFrame) legendWidth() int {
 // rows of the legend beyond the first make the chart taller (fr.height
 // grows) so that the plot keeps its size.
 func (fr *chartFrame) opts() []charts.GlobalOpts {
-	title, sub, extra := chartTitle(fr.title, fr.subtitle)
+	title, sub, extra := chartTitle(fr.mark, fr.title, fr.subtitle)
 	grid := fr.grid
 	grid.ContainLabel = opts.Bool(true)
 	grid.Top = addPixels(grid.Top, 60, extra)

@@ -22,6 +22,9 @@ type doc struct {
 	slugs   map[string]bool // anchors given so far
 	lastH   string          // the latest heading: the default table caption
 	caption string          // the caption of the next table, when set
+	// mark opens every chart's title, interactive and static, as its own
+	// first line: SimulatedMark in a report made from simulated data.
+	mark string
 }
 
 // part is a run of Markdown, the table of contents, or one group of
@@ -252,6 +255,12 @@ func numericColumn(rows [][]string, i int) bool {
 
 // chartID returns the id of the next chart: fixed by its place in the
 // report, so the same run gives the same page.
+// frame gives fr the next chart id and the document's mark.
+func (d *doc) frame(fr chartFrame) *chartFrame {
+	fr.id, fr.mark = d.chartID(), d.mark
+	return &fr
+}
+
 func (d *doc) chartID() string {
 	d.nChart++ // the figure number too
 	return fmt.Sprintf("chart-%d", d.nChart)

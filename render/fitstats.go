@@ -276,8 +276,8 @@ func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 	for _, lv := range shown {
 		legend = append(legend, lv+" expected", lv+" observed")
 	}
-	fr := &chartFrame{id: d.chartID(), title: "Observed and expected by group of predicted score", subtitle: or.Chosen.ID, height: 420,
-		grid: opts.Grid{Left: "6%", Right: "8%", Top: "70", Bottom: "70"}, legend: legend}
+	fr := d.frame(chartFrame{title: "Observed and expected by group of predicted score", subtitle: or.Chosen.ID, height: 420,
+		grid: opts.Grid{Left: "6%", Right: "8%", Top: "70", Bottom: "70"}, legend: legend})
 	l := charts.NewLine()
 	l.SetGlobalOptions(append(fr.opts(),
 		charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: "group", NameLocation: "middle", NameGap: 28}),

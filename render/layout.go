@@ -180,8 +180,11 @@ const (
 
 // chartTitle wraps a chart's title and subtitle to the chart's text
 // width; extra is how many pixels more than one line each they take.
-func chartTitle(title, subtitle string) (t, s string, extra int) {
+func chartTitle(mark, title, subtitle string) (t, s string, extra int) {
 	tl := wrap(title, chartTextWidth, titleLines, widthAt(1.12*titleSize)) // bold
+	if mark != "" {
+		tl = append([]string{mark}, tl...)
+	}
 	extra = (len(tl) - 1) * titleLine
 	if subtitle != "" {
 		sl := wrap(subtitle, chartTextWidth, subtitleLines, widthAt(subtitleSize))

@@ -15,6 +15,9 @@ import (
 // build writes the whole report of a run.
 func build(r *runner.Result, dec *runner.Decisions, changes []string) *doc {
 	d := &doc{}
+	if r.Simulated != nil {
+		d.mark = SimulatedMark
+	}
 	p := r.Plan
 	d.h(1, mdText(reportTitle(r)))
 	writeSimulated(d, r)

@@ -82,6 +82,9 @@ func (c *citer) list() []string {
 // and edit, and the references it cites.
 func writeMethods(d *doc, r *runner.Result) {
 	d.h(2, "Methods (draft)")
+	if r.Simulated != nil {
+		d.p("**%s.** This draft describes a rehearsal on data simulated from the plan's assumptions: its counts and results are not of any real data, and it is not a methods section until the plan is run on the real data.", SimulatedMark)
+	}
 	d.p("A draft of the methods section generated from the plan and this run, to adapt before use. Numbers in brackets refer to the references below.")
 	p := r.Plan
 	c := &citer{}

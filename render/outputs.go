@@ -1,6 +1,8 @@
 package render
 
 import (
+	"bytes"
+	"encoding/csv"
 	"fmt"
 	"strings"
 
@@ -49,7 +51,7 @@ func Outputs(r *runner.Result, dec *runner.Decisions, changes []string) (map[str
 	}
 	for _, or := range r.Outcomes {
 		for _, f := range tableFiles(r, or) {
-			files[f.name] = f.data
+			files[f.name] = markedCSV(r, f.data)
 		}
 		if or.NewRows != nil && or.NewRows.Pred != nil {
 			name := predictionsFile(or)
@@ -58,7 +60,7 @@ func Outputs(r *runner.Result, dec *runner.Decisions, changes []string) (map[str
 				return nil, fmt.Errorf("outcomes %q and %q would write the same predictions file %s", prev, or.Outcome.Column, name)
 			}
 			owner[key] = or.Outcome.Column
-			files[name] = predictionsCSV(r, or)
+			files[name] = markedCSV(r, predictionsCSV(r, or))
 		}
 		sets, err := or.Imputed.CompletedSetsCSV()
 		if err != nil {
@@ -75,4 +77,33 @@ func Outputs(r *runner.Result, dec *runner.Decisions, changes []string) (map[str
 		}
 	}
 	return files, nil
+}
+
+// simulatedColumn is the last column of every table of a run on
+// simulated data, SimulatedMark in each row, so that a table or a row
+// copied elsewhere still says where its numbers come from; the columns
+// before it are those of a run on real data, in the same places.
+const simulatedColumn = "simulated_data"
+
+// markedCSV gives a CSV table of run r: as it is, or with the column
+// simulatedColumn added when r ran on simulated data.
+func markedCSV(r *runner.Result, b []byte) []byte {
+	if r.Simulated == nil {
+		return b
+	}
+	recs, err := csv.NewReader(bytes.NewReader(b)).ReadAll()
+	if err != nil || len(recs) == 0 {
+		return b // the tables are written by this package: they parse
+	}
+	var out bytes.Buffer
+	w := csv.NewWriter(&out)
+	for i, rec := range recs {
+		if i == 0 {
+			w.Write(append(rec, simulatedColumn))
+			continue
+		}
+		w.Write(append(rec, SimulatedMark))
+	}
+	w.Flush()
+	return out.Bytes()
 }

@@ -33,7 +33,7 @@ func PowerOutputs(pr *simulate.PowerResult, reg *lock.Status) (map[string][]byte
 	if err != nil {
 		return nil, err
 	}
-	d := &doc{}
+	d := &doc{mark: SimulatedMark}
 	title := SimulatedMark + ": power and model choice"
 	if pr.Title != "" {
 		title += ": " + pr.Title
@@ -140,8 +140,8 @@ func writePowerHypotheses(d *doc, op simulate.OutcomePower) {
 	if lo == hi {
 		lo, hi = lo/2, lo*3/2
 	}
-	fr := &chartFrame{id: d.chartID(), title: "Power against sample size", subtitle: op.Outcome + ", simulated", height: 380,
-		grid: opts.Grid{Left: "8%", Right: "6%", Bottom: "68"}, legend: legend}
+	fr := d.frame(chartFrame{title: "Power against sample size", subtitle: op.Outcome + ", simulated", height: 380,
+		grid: opts.Grid{Left: "8%", Right: "6%", Bottom: "68"}, legend: legend})
 	l.SetGlobalOptions(append(fr.opts(),
 		charts.WithXAxisOpts(opts.XAxis{Name: "n", Type: "value", Min: val(lo), Max: val(hi)}),
 		charts.WithYAxisOpts(opts.YAxis{Name: "power", Type: "value", Min: 0, Max: 1}))...)

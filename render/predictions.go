@@ -188,7 +188,7 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 	}
 	fig := newFigure(title, pf.focus, "probability")
 	fig.yMin = 0
-	fr := &chartFrame{id: d.chartID(), title: title, subtitle: sub, height: 420, grid: predictionGrid, legend: res.Categories}
+	fr := d.frame(chartFrame{title: title, subtitle: sub, height: 420, grid: predictionGrid, legend: res.Categories})
 	if pf.binary {
 		b := charts.NewBar()
 		b.SetGlobalOptions(append(fr.opts(),
@@ -291,7 +291,7 @@ func cumulativeChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 	grid.Left = "40" // room for the y axis's name, turned beside the axis (a long one over the axis would meet the subtitle)
 	right := 40 + int(math.Ceil(widest))
 	grid.Right = strconv.Itoa(right)
-	fr := &chartFrame{id: d.chartID(), title: title, subtitle: sub, height: 420, grid: grid, legend: legend, legendRight: true}
+	fr := d.frame(chartFrame{title: title, subtitle: sub, height: 420, grid: grid, legend: legend, legendRight: true})
 	axis, step := gridAxis(pf.focus, gridLabels(xs), float64(chartTextWidth-40-right))
 	fr.xStep = step
 	l.SetGlobalOptions(append(fr.opts(),

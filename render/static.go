@@ -21,6 +21,7 @@ import (
 // one beside its interactive option.
 type figure struct {
 	title, xLabel, yLabel string
+	mark                  string    // the title's own first line (doc.mark), or ""
 	xNames                []string  // a category axis (x = 0, 1, ...); nil: a numeric axis
 	xNameMax              vg.Length // the most an x name may take (0: figTickMax)
 	yMin, yMax            float64   // NaN: from the data
@@ -182,7 +183,11 @@ func (f *figure) plot() (*plot.Plot, *plot.Legend, error) {
 	// Long names are wrapped (the title) or shortened with an ellipsis
 	// (the rest) to the figure's width; the caption and the tables give
 	// them whole.
-	p.Title.Text = strings.Join(wrap(f.title, float64(figWidth-legendGap), titleLines, measured(p.Title.TextStyle.Width)), "\n")
+	tl := wrap(f.title, float64(figWidth-legendGap), titleLines, measured(p.Title.TextStyle.Width))
+	if f.mark != "" {
+		tl = append([]string{f.mark}, tl...)
+	}
+	p.Title.Text = strings.Join(tl, "\n")
 	p.X.Label.Text = fitWidth(f.xLabel, float64(figWidth*0.8), measured(p.X.Label.TextStyle.Width))
 	p.Y.Label.Text = fitWidth(f.yLabel, float64(figHeight*0.7), measured(p.Y.Label.TextStyle.Width))
 	leg := plot.NewLegend()

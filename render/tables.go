@@ -510,6 +510,9 @@ func pooledCSVDF(or *runner.OutcomeResult) string {
 func writeFilesSection(d *doc, r *runner.Result) {
 	d.h(2, "Files of this run")
 	d.p("Beside this report, the run wrote these files (their SHA-256 hashes are in run.json). Tables are CSV with a header line, numbers to 12 significant digits, an empty cell where a value does not exist.")
+	if r.Simulated != nil {
+		d.p("Made from simulated data, every table below (and the predictions file) has a last column %s reading %s in every row, after the columns a run on real data writes, and every figure's title and every chart's title in report.html (and so its PNG and SVG exports) begins with a line %s.", mdCode(simulatedColumn), SimulatedMark, SimulatedMark)
+	}
 	rows := [][]string{
 		{"report.md, report.html", "this report (Markdown with SVG figures; HTML with interactive charts)"},
 		{"decisions.json", "every fit, test and verdict in machine-readable form"},

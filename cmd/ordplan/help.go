@@ -54,7 +54,7 @@ var commands = []command{
 		examples: map[string]string{"data": "--data survey.csv", "header": `--header "id,y,age,sex"`, "outcome": "--outcome y",
 			"delimiter": "--data survey.csv --delimiter semicolon --decimal comma", "decimal": "--data survey.csv --delimiter semicolon --decimal comma",
 			"sheet": "--data survey.xlsx --sheet wave2", "header-row": "--data survey.xlsx --header-row 3"}},
-	{name: "rehearse", args: "PLAN.yaml [flags]", summary: "run the whole plan, rules and report included, on data simulated from its assumptions (every page says SIMULATED DATA)",
+	{name: "rehearse", args: "PLAN.yaml [flags]", summary: "run the whole plan, rules and report included, on data simulated from its assumptions (every page, figure and table says SIMULATED DATA)",
 		examples: map[string]string{"n": "--n 400", "out": "--out out/rehearsal", "workers": "--workers 2", "quiet": "--quiet", "allow-unregistered-changes": "--allow-unregistered-changes"}},
 	{name: "power", args: "PLAN.yaml --n 200,400 [flags]", summary: "size the study: run the whole decision procedure on data simulated at each sample size; power of the plan's hypotheses, how often each model is chosen, separation and non-convergence, with Monte Carlo errors",
 		examples: map[string]string{"n": "--n 200,400,800", "replicates": "--replicates 200", "alpha": "--alpha 0.01",
