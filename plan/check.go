@@ -21,6 +21,7 @@ func (d *decoder) check(p *Plan) {
 	}
 	d.checkSubsetLevels(p)
 	d.checkLevelMarkers(p)
+	d.checkSubsetMarkers(p)
 	d.checkDataOptions(p)
 	d.checkImputation(p)
 	d.checkApproaches(p)
@@ -127,6 +128,15 @@ func (d *decoder) checkColumns(p *Plan) {
 // col (listed under the key list) that is a missing-value marker in force
 // (data.MarkerClash): no cell would ever be read as v.
 func (d *decoder) checkMarker(p *Plan, col, v, list, what string) {
+	own, keys := p.ownMissing(col)
+	if why := data.MarkerClash(v, p.Data.MissingValues, own, keys); why != "" {
+		d.errAt(d.itemKey(list, v), "%s %s of column %s %s", what, quote(v), quote(col), why)
+	}
+}
+
+// ownMissing is column col's own missing-value codes (its dictionary
+// entry's missing), and the keys that set its markers, for MarkerClash.
+func (p *Plan) ownMissing(col string) ([]string, data.MarkerKeys) {
 	var own []string
 	ownKey := "dictionary." + col + ".missing"
 	for _, e := range p.Dictionary {
@@ -134,8 +144,35 @@ func (d *decoder) checkMarker(p *Plan, col, v, list, what string) {
 			own, ownKey = e.Missing, e.Key+".missing"
 		}
 	}
-	if why := data.MarkerClash(v, p.Data.MissingValues, own, data.MarkerKeys{Markers: "data.missing_values", Own: ownKey}); why != "" {
-		d.errAt(d.itemKey(list, v), "%s %s of column %s %s", what, quote(v), quote(col), why)
+	return own, data.MarkerKeys{Markers: "data.missing_values", Own: ownKey}
+}
+
+// checkSubsetMarkers refuses a value of a subset condition that is a
+// missing-value marker in force (data.Condition.MarkerValues, worded by
+// data.MarkerClash): every cell it would meet is read as missing, and a
+// condition does not compare a missing cell, so it never meets a row. A
+// condition that keeps such rows keeps none; one that leaves them out
+// does nothing the missing values do not do already.
+func (d *decoder) checkSubsetMarkers(p *Plan) {
+	if !d.clean("subset") || !d.clean("data") || !d.clean("dictionary") {
+		return
+	}
+	for _, sc := range p.Subset {
+		own, keys := p.ownMissing(sc.Column)
+		values, marks := sc.MarkerValues(p.Data.MissingValues, own, p.Data.Dialect())
+		for i, v := range values {
+			op := subsetOps[slices.IndexFunc(subsetOps, func(o struct{ key, op string }) bool { return o.op == sc.Op })].key
+			key := sc.Key + "." + op
+			if sc.Values != nil {
+				key = d.itemKey(key, v)
+			}
+			why := data.MarkerClash(marks[i], p.Data.MissingValues, own, keys)
+			if sc.Op == "in" || sc.Op == "==" {
+				d.errAt(key, "value %s of column %s matches no cell: a condition does not compare a missing cell, and %s %s", quote(v), quote(sc.Column), quote(marks[i]), why)
+				continue
+			}
+			d.errAt(key, "value %s of column %s matches no cell: a condition does not compare a missing cell, and %s %s; a row whose %s is missing is left out anyway, as a row with a missing value: if that is what the condition is for, remove the value from it", quote(v), quote(sc.Column), quote(marks[i]), why, sc.Column)
+		}
 	}
 }
 

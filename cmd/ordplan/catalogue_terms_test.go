@@ -326,6 +326,15 @@ func termItems(dir string) []badInput {
 					t.Errorf("decisions.json does not list the row not predicted (%v)", err)
 				}
 			}},
+		{id: "T32", name: "a subset value that is a default missing-value marker (one_of: [NA])", args: []string{"check", "--no-data"}, setup: writeTermsData,
+			plan: termsEdit("predictors:", "subset:\n  - {column: site, one_of: [north, east, south, NA]}\npredictors:"), code: 1,
+			want: []string{`T32.yaml:7:49: subset[0].one_of[3]: value "NA" of column "site" matches no cell: a condition does not compare a missing cell, and "NA" is also one of the default missing-value markers "", "NA", "NaN", ".", in force while data.missing_values is not set: every cell "NA" is read as missing, never as this value; set data.missing_values to the markers the data use, without "NA", such as ["", "NaN", "."], or recode the value in the data` + "\n"}},
+		{id: "T32", name: "a subset number that is a column's own missing-value code, written otherwise (equal_to: -9.0, code -9)", args: []string{"run"}, setup: writeTermsData,
+			plan: termsEdit("data: {file: cat.csv}", "data: {file: cat.csv, missing_values: [\"\"]}", "predictors:", "subset:\n  - {column: x, equal_to: -9.0}\npredictors:", "rules:", "dictionary:\n  x: {missing: [\"-9\"]}\n  site: {}\nrules:"), code: 1,
+			want: []string{`subset[0].equal_to: value "-9" of column "x" matches no cell: a condition does not compare a missing cell, and "-9" is also one of the column's own missing-value codes (dictionary.x.missing): every cell "-9" is read as missing, never as this value; remove it from dictionary.x.missing, or recode the value in the data`}},
+		{id: "T32", name: "a subset that leaves out a value that is a missing-value marker (none_of: [\"-\"], \"-\" in data.missing_values)", args: []string{"check", "--no-data"}, setup: writeTermsData,
+			plan: termsEdit("data: {file: cat.csv}", "data: {file: cat.csv, missing_values: [\"\", \"-\"]}", "predictors:", "subset:\n  - {column: site, none_of: [\"-\"]}\npredictors:"), code: 1,
+			want: []string{`subset[0].none_of[0]: value "-" of column "site" matches no cell: a condition does not compare a missing cell, and "-" is also a missing-value marker in data.missing_values: every cell "-" is read as missing, never as this value; remove it from data.missing_values ([""]), or recode the value in the data; a row whose site is missing is left out anyway, as a row with a missing value: if that is what the condition is for, remove the value from it`}},
 		{id: "T30", name: "a profile that a term cannot be computed at (log of 0): warned by check and run, its effects not computed", args: []string{"run"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: x, at_least: 0}\npredictors:", "[site, x]", "[site, {name: lx, column: x, log: {shift: 0}}]", "rules:", "inference: {marginal_effects: [profile], profile: {x: 0}}\nrules:"), code: 0,
 			want: []string{"y: chosen: cumulative/parallel/logit"},

@@ -123,6 +123,41 @@ func MarkerClash(v string, markers, own []string, k MarkerKeys) string {
 	return fmt.Sprintf("is also one of the default missing-value markers %s, in force while %s is not set: every cell %s is read as missing, never as this value; set %s to the markers the data use, without %s, such as %s, or recode the value in the data", strings.Join(q, ", "), k.Markers, quoteCell(v), k.Markers, quoteCell(v), list)
 }
 
+// MarkerValues gives the values of a subset condition that are
+// missing-value markers in force (markers: the list for every column, nil
+// for DefaultMissing; own: the column's own codes), each with the marker
+// it is, for MarkerClash: a text of one_of or none_of that is a marker,
+// or the number of equal_to or not_equal_to that a marker is as a number
+// in the dialect d (the reader reads a column a subset compares with a
+// number so: readNumbers, a marker -9 marks -9.0 too). Every cell such a
+// value would meet is read as missing, and a condition does not judge a
+// missing cell (outsideSubset), so the value never meets a row.
+func (c Condition) MarkerValues(markers, own []string, d Dialect) (values, marks []string) {
+	if markers == nil {
+		markers = DefaultMissing
+	}
+	all := slices.Concat(own, markers)
+	switch c.Op {
+	case "in", "not_in":
+		for _, v := range c.Values {
+			if i := slices.IndexFunc(all, func(m string) bool { return strings.TrimSpace(m) == strings.TrimSpace(v) }); i >= 0 {
+				values, marks = append(values, v), append(marks, all[i])
+			}
+		}
+	case "==", "!=":
+		for _, m := range all {
+			t := strings.TrimSpace(m)
+			if _, b := boolWord(t); b || t == "" {
+				continue
+			}
+			if v, msg := d.number(t); msg == "" && v == c.Number {
+				return []string{strconv.FormatFloat(c.Number, 'g', -1, 64)}, []string{m}
+			}
+		}
+	}
+	return values, marks
+}
+
 // role is what a used column is for.
 type role int
 
