@@ -1290,6 +1290,42 @@ func catalogue(dir string) (items []badInput) {
 			}},
 		{id: "D41", name: "outcome codes with a gap", args: fitArgs(d("gapcodes.csv"), "--predictors", "a,b"), setup: floatCodes, code: 0,
 			want: []string{"Outcome          y: 1 < 2 < 5 (3 categories)", "The outcome y holds the integer codes 1, 2 and 5, taken as ordered categories, lowest first; 3 and 4 do not occur, so no category stands for them, and the distance between two codes plays no part"}},
+		{id: "D43", name: "ordplan init on outcome codes written with a zero fraction (some 2.0, some 2)", args: []string{"init", "D43init.yaml", "--data", "mixcodes.csv"}, code: 0,
+			setup: func(t *testing.T, dir, id string) {
+				floatCodes(t, dir, id)
+				b, err := os.ReadFile(filepath.Join(dir, "floatcodes0.csv"))
+				if err != nil {
+					t.Fatal(err)
+				}
+				lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+				for i, l := range lines {
+					f := strings.Split(l, ",")
+					if i%2 == 1 {
+						f[0] = strings.TrimSuffix(f[0], ".0")
+					}
+					lines[i] = strings.Join(f[:3], ",") // y, a, b
+				}
+				os.WriteFile(filepath.Join(dir, "mixcodes.csv"), []byte(strings.Join(lines, "\n")+"\n"), 0o644)
+				os.Remove(filepath.Join(dir, "D43init.yaml"))
+				t.Chdir(dir)
+			},
+			want: []string{"note: the outcome y writes its codes with a zero fraction (3.0): the plan lists them as the codes they are read as (1, 2, 3), which match the cells however the file writes them\n"},
+			check: func(t *testing.T, dir, out, errs string) {
+				plan := filepath.Join(dir, "D43init.yaml")
+				b, err := os.ReadFile(plan)
+				if err != nil {
+					t.Fatal(err)
+				}
+				for _, want := range []string{"#   y  integer codes 1, 2, 3 (3 values; the file writes codes with a zero fraction (3.0 is read as the code 3)): ordered categories, or a count?",
+					"    categories: [1, 2, 3]   # lowest first; integer codes as found; the file writes codes with a zero fraction (3.0 is read as the code 3)\n"} {
+					if !strings.Contains(string(b), want) {
+						t.Errorf("the plan lacks %q:\n%s", want, b)
+					}
+				}
+				if o, e, code := runCLI("check", plan); code != 0 || !strings.Contains(o, "plan is valid") {
+					t.Errorf("check of the plan init wrote: exit %d\n%s%s", code, o, e)
+				}
+			}},
 		{id: "D42", name: "levels and categories in another Unicode form than the data", args: []string{"run"}, setup: unicodeForms,
 			plan: edit("  file: d.csv\n", "  file: nfd.csv\n", "  - column: y\n", "  - column: q\n    categories: [mal, bien, très bien]\n", "predictors: [a, b]", "categorical:\n  city: {levels: [Bern, Zürich, Genève]}\npredictors: [a, b, city]"), code: 0,
 			check: func(t *testing.T, dir, out, errs string) {

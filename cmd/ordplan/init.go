@@ -88,6 +88,9 @@ func cmdInit(args []string, stdout, stderr io.Writer) int {
 		return fail(stderr, err)
 	}
 	fmt.Fprintf(stdout, "wrote %s: edit the lines marked EDIT, then `ordplan check %s`\n", planPath, planPath)
+	for _, n := range skeleton.Notes(in) {
+		fmt.Fprintf(stdout, "note: %s\n", n)
+	}
 	return exitOK
 }
 

@@ -64,7 +64,7 @@ func KindOf(p data.Profile, haveData bool) Kind {
 			what, p.Count, p.Rows-p.Missing, float64(p.Rows-p.Missing)/float64(p.Count), miss)}
 	case p.Numeric && p.Integer && !p.Many && p.Distinct >= 3 && p.Distinct <= 10:
 		return Kind{Word: "ordered?", Candidate: true,
-			Describe: fmt.Sprintf("integer codes %s (%d values): ordered categories, or a count?%s", strings.Join(p.Values, ", "), p.Distinct, miss)}
+			Describe: fmt.Sprintf("integer codes %s (%d values%s): ordered categories, or a count?%s", strings.Join(p.Values, ", "), p.Distinct, zeroFraction(p), miss)}
 	case p.Numeric:
 		what := "numeric"
 		if p.Integer {
@@ -94,31 +94,9 @@ func Write(in Input) ([]byte, error) {
 	for i, c := range in.Columns {
 		kinds[i] = KindOf(c, in.HaveData)
 	}
-	outcome := -1
-	guessed := false
-	for i, c := range in.Columns {
-		if c.Name == in.Outcome {
-			outcome = i
-		}
-	}
-	if in.Outcome != "" && outcome < 0 {
-		var names []string
-		for _, c := range in.Columns {
-			names = append(names, strconv.Quote(c.Name))
-		}
-		return nil, fmt.Errorf("--outcome: column %q is not in the file (its columns are %s)", in.Outcome, strings.Join(names, ", "))
-	}
-	if outcome < 0 {
-		guessed = true
-		best := 0
-		for i, c := range in.Columns {
-			if sc := outcomeScore(c, kinds[i]); sc > best {
-				outcome, best = i, sc
-			}
-		}
-		if outcome < 0 {
-			outcome = outcomeByName(in.Columns)
-		}
+	outcome, guessed, err := in.outcome(kinds)
+	if err != nil {
+		return nil, err
 	}
 	var preds, skipped, weighty, clustery []string
 	var cats []int // text columns used as categorical predictors
@@ -237,7 +215,7 @@ func Write(in Input) ([]byte, error) {
 		case in.HaveData && kinds[outcome].Candidate && !c.Numeric:
 			w("    categories: [%s]   # EDIT: put them in order, lowest first", yamlList(c.Values))
 		case in.HaveData && c.Numeric && !c.Many:
-			w("    categories: [%s]   # lowest first; integer codes as found", yamlList(c.Values))
+			w("    categories: [%s]   # lowest first; integer codes as found%s", yamlList(c.Values), zeroFraction(c))
 		default:
 			w("    categories: null     # EDIT: the categories in order, lowest first")
 		}
@@ -337,6 +315,66 @@ func thousandsLike(c data.Profile) string {
 		return fmt.Sprintf("may separate thousands (every value has one and three digits after it, such as %s)", c.ThousandsPoint)
 	}
 	return fmt.Sprintf("look like thousands separators (%s beside %s)", c.ThousandsPoint, c.ThousandsBeside)
+}
+
+// outcome is the index of the outcome column (-1: none), and whether it
+// was guessed, not given (Input.Outcome); kinds are the columns' kinds.
+func (in Input) outcome(kinds []Kind) (int, bool, error) {
+	outcome := -1
+	for i, c := range in.Columns {
+		if c.Name == in.Outcome {
+			outcome = i
+		}
+	}
+	if in.Outcome != "" && outcome < 0 {
+		var names []string
+		for _, c := range in.Columns {
+			names = append(names, strconv.Quote(c.Name))
+		}
+		return -1, false, fmt.Errorf("--outcome: column %q is not in the file (its columns are %s)", in.Outcome, strings.Join(names, ", "))
+	}
+	if outcome >= 0 {
+		return outcome, false, nil
+	}
+	best := 0
+	for i, c := range in.Columns {
+		if sc := outcomeScore(c, kinds[i]); sc > best {
+			outcome, best = i, sc
+		}
+	}
+	if outcome < 0 {
+		outcome = outcomeByName(in.Columns)
+	}
+	return outcome, true, nil
+}
+
+// Notes are the remarks `ordplan init` prints beside the plan Write
+// writes: outcome codes the file writes with a zero fraction, listed as
+// the codes they are read as.
+func Notes(in Input) []string {
+	kinds := make([]Kind, len(in.Columns))
+	for i, c := range in.Columns {
+		kinds[i] = KindOf(c, in.HaveData)
+	}
+	o, _, err := in.outcome(kinds)
+	if err != nil || o < 0 || !in.HaveData {
+		return nil
+	}
+	if c := in.Columns[o]; c.ZeroFraction != "" && c.Numeric && !c.Many {
+		return []string{fmt.Sprintf("the outcome %s writes its codes with a zero fraction (%s): the plan lists them as the codes they are read as (%s), which match the cells however the file writes them", c.Name, c.ZeroFraction, strings.Join(c.Values, ", "))}
+	}
+	return nil
+}
+
+// zeroFraction says, for a column of integers some of which the file
+// writes with a zero fraction (data.Profile.ZeroFraction), that its values
+// are listed as the integers the reader reads them as; "" otherwise.
+func zeroFraction(c data.Profile) string {
+	if c.ZeroFraction == "" {
+		return ""
+	}
+	whole, _, _ := strings.Cut(strings.ReplaceAll(c.ZeroFraction, ",", "."), ".")
+	return fmt.Sprintf("; the file writes codes with a zero fraction (%s is read as the code %s)", c.ZeroFraction, whole)
 }
 
 // lowCodes reports whether a numeric column holds conventional

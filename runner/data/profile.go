@@ -45,6 +45,12 @@ type Profile struct {
 	// every value has such a point, which three decimals could be too);
 	// "" when the column shows no such sign.
 	ThousandsPoint, ThousandsBeside string
+	// ZeroFraction, of a column of integers, is a value written with a
+	// zero fraction (2.0, as tools that store integers as floating-point
+	// numbers export them), "" when none is: Values lists such a value
+	// as the integer it is read as (2), the text a declared category
+	// matches (declaredCategory), as a code found is named.
+	ZeroFraction string
 }
 
 // topLikeCodes are numbers that surveys conventionally write at the top
@@ -194,6 +200,12 @@ func (r *reader) profile() ([]Profile, error) {
 			for j, v := range p.Values {
 				if b, ok := boolWord(v); ok {
 					p.Values[j] = strconv.FormatFloat(b, 'g', -1, 64)
+				}
+				if whole, ok := zeroFraction(v, d.mark()); ok && p.Integer {
+					if p.ZeroFraction == "" {
+						p.ZeroFraction = v
+					}
+					p.Values[j] = whole
 				}
 			}
 			slices.Sort(p.Values)

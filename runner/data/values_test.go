@@ -191,3 +191,29 @@ func TestUnicodeFormsAlike(t *testing.T) {
 		t.Errorf("declared NFD: %v", err)
 	}
 }
+
+// The profile `ordplan init` writes categories from lists the codes of a
+// column of integers as the reader reads them (2.0 as 2, in the file's
+// decimal mark), once each, and keeps a value written with a zero
+// fraction to say so; a column of other numbers is listed as written.
+func TestProfileZeroFractionCodes(t *testing.T) {
+	dir := t.TempDir()
+	for _, c := range []struct {
+		text string
+		d    Dialect
+	}{{"y,a\n2.0,1.5\n1,2.5\n3.00,3\n,4\n2,5\n", Dialect{}}, {"y;a\n2,0;1,5\n1;2,5\n3,00;3\n;4\n2;5\n", Dialect{Delimiter: ';', DecimalComma: true}}} {
+		path := filepath.Join(dir, "z.csv")
+		os.WriteFile(path, []byte(c.text), 0o644)
+		ps, err := ProfileFile(path, nil, c.d)
+		if err != nil {
+			t.Fatal(err)
+		}
+		y, a := ps[0], ps[1]
+		if got := strings.Join(y.Values, " "); got != "1 2 3" || y.Distinct != 3 || y.ZeroFraction != strings.Split(c.text, "\n")[1][:3] || !y.Integer {
+			t.Errorf("%q: y values %s (%d), written %q", c.text, got, y.Distinct, y.ZeroFraction)
+		}
+		if a.ZeroFraction != "" || a.Values[0] != strings.Split(strings.Split(c.text, "\n")[1], string(c.d.delim()))[1] {
+			t.Errorf("%q: a %+v", c.text, a)
+		}
+	}
+}
