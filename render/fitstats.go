@@ -148,8 +148,10 @@ func cautionText(t fit.Test) string {
 	return " Caution: " + t.Warning + "."
 }
 
+// capitalize is s with its first letter, a lower-case ASCII letter,
+// written in upper case; s as it is otherwise (a number first).
 func capitalize(s string) string {
-	if s == "" {
+	if s == "" || s[0] < 'a' || s[0] > 'z' {
 		return s
 	}
 	return string(s[0]-'a'+'A') + s[1:]

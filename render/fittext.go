@@ -55,7 +55,7 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 		file, drop := ds.File, ds.DropSummary
 		if ds.Sheet != nil {
 			file += ", " + ds.Sheet.Where()
-			if n := ds.Sheet.HiddenRowsNote(); n != "" {
+			if n := ds.Sheet.HiddenNote(); n != "" {
 				drop += "; " + n
 			}
 		}

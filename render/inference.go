@@ -123,7 +123,7 @@ func writeNewRows(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	file := "`" + nr.File + "`"
 	if s := nr.Rows.Sheet; s != nil {
 		file += ", " + mdText(s.Where())
-		if n := s.HiddenRowsNote(); n != "" {
+		if n := s.HiddenNote(); n != "" {
 			file += "; " + mdText(n)
 		}
 	}

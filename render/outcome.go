@@ -58,8 +58,8 @@ func writeData(d *doc, or *runner.OutcomeResult, sampling bool, cluster string) 
 	}
 	if s := ds.Sheet; s != nil {
 		obs += " The rows were read from the workbook's " + mdText(s.Where()) + "."
-		if n := s.HiddenRowsNote(); n != "" {
-			obs += " " + mdText(n) + "."
+		if n := s.HiddenNote(); n != "" {
+			obs += " " + mdText(capitalize(n)) + "."
 		}
 	}
 	d.p("Outcome column %s, %d categories in this order: %s. %d rows read, %d used; %s.%s",

@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"path/filepath"
 	"runtime"
+	"slices"
 
 	"ordplan/plan"
 	"ordplan/plan/lock"
@@ -51,10 +52,12 @@ type DataRef struct {
 	Parts []DataRef `json:"parts,omitempty"`
 	// Sheet names the worksheet of a workbook read, in run.json (absent
 	// for other files, and in decisions.json); SheetHidden says it is hidden (read because the plan names
-	// it), HiddenRows how many of the rows read the sheet hides from view.
-	Sheet       string `json:"sheet,omitempty"`
-	SheetHidden bool   `json:"sheet_hidden,omitempty"`
-	HiddenRows  int    `json:"hidden_rows_read,omitempty"`
+	// it), HiddenRows how many of the rows read the sheet hides from view,
+	// HiddenColumns which of the columns read it hides (of any outcome).
+	Sheet         string   `json:"sheet,omitempty"`
+	SheetHidden   bool     `json:"sheet_hidden,omitempty"`
+	HiddenRows    int      `json:"hidden_rows_read,omitempty"`
+	HiddenColumns []string `json:"hidden_columns_read,omitempty"`
 }
 
 // OutcomeDecisions is one outcome's part of decisions.json.
@@ -462,14 +465,35 @@ func newRowsSheet(ref *DataRef, r *Result) *DataRef {
 	if ref == nil {
 		return nil
 	}
+	var sheets []*data.SheetRead
 	for _, or := range r.Outcomes {
-		if nr := or.NewRows; nr != nil && nr.Rows != nil && nr.Rows.Sheet != nil {
-			s := nr.Rows.Sheet
-			ref.Sheet, ref.SheetHidden, ref.HiddenRows = s.Name, s.Hidden, s.HiddenRows
-			break
+		if nr := or.NewRows; nr != nil && nr.Rows != nil {
+			sheets = append(sheets, nr.Rows.Sheet)
 		}
 	}
+	ref.setSheet(sheets)
 	return ref
+}
+
+// setSheet writes into ref what run.json says of the worksheet rows were
+// read from, as each outcome's reading saw it (nil: not a workbook): its
+// name, whether it is hidden, the hidden rows read (the same rows for
+// every outcome), and the hidden columns any outcome read, in the order
+// first met.
+func (ref *DataRef) setSheet(sheets []*data.SheetRead) {
+	for _, s := range sheets {
+		if s == nil {
+			continue
+		}
+		if ref.Sheet == "" {
+			ref.Sheet, ref.SheetHidden, ref.HiddenRows = s.Name, s.Hidden, s.HiddenRows
+		}
+		for _, c := range s.HiddenNames() {
+			if !slices.Contains(ref.HiddenColumns, c) {
+				ref.HiddenColumns = append(ref.HiddenColumns, c)
+			}
+		}
+	}
 }
 
 // dataRef is the record of the data a run read: the file and its hash, or
@@ -485,11 +509,12 @@ func dataRef(r *Result) DataRef {
 // data file is a workbook (run.json names it; decisions.json, the same
 // for the same data in any format, does not).
 func withSheet(ref DataRef, r *Result) DataRef {
+	var sheets []*data.SheetRead
 	for _, or := range r.Outcomes {
-		if ds := or.AsRead(); ds != nil && ds.Sheet != nil {
-			ref.Sheet, ref.SheetHidden, ref.HiddenRows = ds.Sheet.Name, ds.Sheet.Hidden, ds.Sheet.HiddenRows
-			break
+		if ds := or.AsRead(); ds != nil {
+			sheets = append(sheets, ds.Sheet)
 		}
 	}
+	ref.setSheet(sheets)
 	return ref
 }

@@ -331,8 +331,9 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		"bad.parquet": []byte("PAR1garbagegarbagePAR1"), "notpq.parquet": []byte(csv), "dates.parquet": datesParquet(t),
 		"formula.xlsx": formulaWorkbook(t), "shown.xlsx": shownWorkbook(t), "bomb.xlsx": claimingWorkbook(t),
 		"formula0.xlsx": emptyValueFormula(t, formulaWorkbook(t)), "sheets.xlsx": sheetsWorkbook(t),
-		"book.xlsx":    toWorkbook(t, []byte(strings.ReplaceAll(csv, "safety", "y"))),
-		"parts/p1.csv": []byte(csv), "parts/p2.csv": []byte(strings.SplitAfter(csv, "\n")[0] + strings.Join(reversed(rows), "\n") + "\n"), "otherpart.csv": []byte("y,a,z\n1,0.5,1\n"),
+		"book.xlsx":      toWorkbook(t, []byte(strings.ReplaceAll(csv, "safety", "y"))),
+		"hiddencol.xlsx": hideColumns(t, toWorkbook(t, []byte(csv)), "survey", "B"),
+		"parts/p1.csv":   []byte(csv), "parts/p2.csv": []byte(strings.SplitAfter(csv, "\n")[0] + strings.Join(reversed(rows), "\n") + "\n"), "otherpart.csv": []byte("y,a,z\n1,0.5,1\n"),
 		"emptypart.csv": []byte(strings.SplitAfter(csv, "\n")[0]),
 		"new.csv":       []byte("a,b\n0.5,1\n-1,0\n"), "short.key": []byte("short\n"), "queue.key": []byte("a shared secret of the catalogue's queue\n"), "precious.txt": []byte("keep me\n"),
 	}
@@ -422,6 +423,25 @@ func sheetsWorkbook(t *testing.T) []byte {
 		}
 	}
 	if err := f.SetSheetVisible("old", false); err != nil {
+		t.Fatal(err)
+	}
+	var b bytes.Buffer
+	if err := f.Write(&b); err != nil {
+		t.Fatal(err)
+	}
+	return b.Bytes()
+}
+
+// hideColumns is the workbook raw with the columns cols ("B", "C:D") of
+// its sheet hidden from view.
+func hideColumns(t *testing.T, raw []byte, sheet, cols string) []byte {
+	t.Helper()
+	f, err := excelize.OpenReader(bytes.NewReader(raw))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	if err := f.SetColVisible(sheet, cols, false); err != nil {
 		t.Fatal(err)
 	}
 	var b bytes.Buffer
@@ -1373,6 +1393,8 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`X22.yaml:4:10: data.sheet: applies to .xlsx workbooks, and no file of this plan is one (the data file "d.csv" is not named *.xlsx): remove the key`}},
 		{id: "X23", name: "a filled cell right of a workbook's table (a note beside the data)", args: fitArgs(d("sheets.xlsx"), "--predictors", "a", "--sheet", "data"), code: 1,
 			want: []string{"ordplan: sheets.xlsx:3: cell E3 holds \"checked 2024-03\", right of the table, whose header (row 1) names 3 columns, up to column C: if it is a note beside the data, move or delete it; if it is data, give its column a name in the header row\n"}},
+		{id: "X25", name: "a workbook column the fit reads that the sheet hides (read, and named)", args: fitArgs(d("hiddencol.xlsx"), "--predictors", "a,b", "--sheet", "survey", "--header-row", "3"), code: 0,
+			want: []string{`hiddencol.xlsx, sheet "survey": 120 rows read, 120 used; no rows dropped for missing values; column "a" (column B), which is read, is hidden in the sheet; it was read as data like the others (a hidden column is often an old version kept out of view: check that it is the column meant)`}},
 		{id: "X24", name: "a workbook's sheet named that is empty", args: fitArgs(d("sheets.xlsx"), "--predictors", "a", "--sheet", "blank"), code: 1,
 			want: []string{"ordplan: sheets.xlsx: sheet \"blank\" is empty; the workbook's other sheets: \"notes\", \"data\", \"old\" (hidden) (data.sheet, or --sheet, names the one to read)\n"}},
 		{id: "X17", name: "a spreadsheet error value in a used column", args: fitArgs(d("formula.xlsx"), "--predictors", "b"), code: 1,

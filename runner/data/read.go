@@ -192,6 +192,13 @@ func (r *reader) header(cols []usedCol) error {
 		cols[i].index = j
 	}
 	r.cols = cols
+	if sr, ok := r.cr.(*sheetRecords); ok {
+		fields := make([]int, len(cols))
+		for i, c := range cols {
+			fields[i] = c.index
+		}
+		sr.markHidden(fields, names)
+	}
 	for _, c := range cols {
 		if r.asNumbers(c) {
 			r.readNumbers(c.name)

@@ -7,10 +7,13 @@ import (
 	"fmt"
 	"io"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 
 	"github.com/xuri/excelize/v2"
+
+	"ordplan/internal/words"
 )
 
 // records is what the reader takes from a file of any format: the header
@@ -45,6 +48,9 @@ type sheetRecords struct {
 	// hiddenRows are the sheet rows hidden from view (scanHiddenRows);
 	// read.HiddenRows counts those among the records read
 	hiddenRows map[int]bool
+	// hiddenCols are the sheet columns (1-based) of the header hidden
+	// from view (excelize's GetColVisible); usedHidden names the used ones
+	hiddenCols map[int]bool
 	read       SheetRead
 	header     []string // the header's names, once read
 	headerLine int      // its sheet row
@@ -60,6 +66,10 @@ type SheetRead struct {
 	// (hidden rows, or rows a filter hides): they are read as the data
 	// they are, but nobody looking at the sheet sees them.
 	HiddenRows int
+	// HiddenColumns are the columns read (the used ones) that the sheet
+	// hides from view, in the sheet's order: read as the data they are,
+	// as hidden rows are.
+	HiddenColumns []HiddenColumn
 	// Sheets is the number of the workbook's sheets, hidden ones too.
 	Sheets int
 }
@@ -229,6 +239,7 @@ func openSheet(raw []byte, d Dialect) (*sheetRecords, string) {
 			rows[row-1][col-1] = text
 		}
 	}
+	sr.hiddenCols = hiddenColumns(f, sheet, len(rows[h-1]))
 	sr.rows = rows[h-1:]
 	sr.lead = emptyLead(sr.rows)
 	for i, r := range sr.rows {
@@ -438,6 +449,55 @@ func scanHiddenRows(x []byte) map[int]bool {
 	return out
 }
 
+// HiddenColumn is a column of the header a sheet hides from view: its
+// name, and its letters in the sheet (C).
+type HiddenColumn struct{ Name, Letters string }
+
+// HiddenNames are the names of the columns read that the sheet hides.
+func (s *SheetRead) HiddenNames() []string {
+	var out []string
+	for _, c := range s.HiddenColumns {
+		out = append(out, c.Name)
+	}
+	return out
+}
+
+// hiddenColumns finds the columns 1 to width of a worksheet hidden from
+// view (hidden by hand, or by a collapsed outline: <col hidden="1">).
+func hiddenColumns(f *excelize.File, sheet string, width int) map[int]bool {
+	var out map[int]bool
+	for c := 1; c <= width; c++ {
+		name, err := excelize.ColumnNumberToName(c)
+		if err != nil {
+			break
+		}
+		if v, err := f.GetColVisible(sheet, name); err == nil && !v {
+			if out == nil {
+				out = map[int]bool{}
+			}
+			out[c] = true
+		}
+	}
+	return out
+}
+
+// markHidden names, in SheetRead.HiddenColumns, the used columns (fields
+// of the header, 0-based, with their names) the sheet hides from view.
+func (s *sheetRecords) markHidden(fields []int, names []string) {
+	s.read.HiddenColumns = nil
+	if len(s.hiddenCols) == 0 {
+		return
+	}
+	fields = slices.Clone(fields)
+	slices.Sort(fields)
+	for _, j := range slices.Compact(fields) {
+		if s.hiddenCols[s.lead+j+1] {
+			letters, _ := excelize.ColumnNumberToName(s.lead + j + 1)
+			s.read.HiddenColumns = append(s.read.HiddenColumns, HiddenColumn{Name: names[j], Letters: letters})
+		}
+	}
+}
+
 // Where names the sheet for a summary: `sheet "data"`, with, for a hidden
 // sheet, that it is hidden and read because it was named.
 func (s *SheetRead) Where() string {
@@ -448,16 +508,30 @@ func (s *SheetRead) Where() string {
 	return w
 }
 
-// HiddenRowsNote says how many of the rows read the sheet hides from view
-// ("" when none): they are data, read as the others are.
-func (s *SheetRead) HiddenRowsNote() string {
+// HiddenNote says how many of the rows read the sheet hides from view,
+// and which of the columns read it hides ("" when none): they are data,
+// read as the others are.
+func (s *SheetRead) HiddenNote() string {
+	var out []string
 	switch s.HiddenRows {
 	case 0:
-		return ""
 	case 1:
-		return "1 of the rows read is hidden in the sheet (a hidden row, or one a filter hides); it was read as data like the others (delete it, or leave it out with a subset condition, if it should not count)"
+		out = append(out, "1 of the rows read is hidden in the sheet (a hidden row, or one a filter hides); it was read as data like the others (delete it, or leave it out with a subset condition, if it should not count)")
+	default:
+		out = append(out, fmt.Sprintf("%d of the rows read are hidden in the sheet (hidden rows, or rows a filter hides); they were read as data like the others (delete them, or leave them out with a subset condition, if they should not count)", s.HiddenRows))
 	}
-	return fmt.Sprintf("%d of the rows read are hidden in the sheet (hidden rows, or rows a filter hides); they were read as data like the others (delete them, or leave them out with a subset condition, if they should not count)", s.HiddenRows)
+	cols := make([]string, len(s.HiddenColumns))
+	for i, c := range s.HiddenColumns {
+		cols[i] = fmt.Sprintf("%s (column %s)", quoteCell(c.Name), c.Letters)
+	}
+	switch len(cols) {
+	case 0:
+	case 1:
+		out = append(out, fmt.Sprintf("column %s, which is read, is hidden in the sheet; it was read as data like the others (a hidden column is often an old version kept out of view: check that it is the column meant)", cols[0]))
+	default:
+		out = append(out, fmt.Sprintf("columns %s, which are read, are hidden in the sheet; they were read as data like the others (a hidden column is often an old version kept out of view: check that they are the columns meant)", words.AndList(cols)))
+	}
+	return strings.Join(out, "; ")
 }
 
 // scanNumberCells calls at for every numeric cell (no type, or type n) of

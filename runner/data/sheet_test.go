@@ -2,6 +2,7 @@ package data
 
 import (
 	"bytes"
+	"reflect"
 	"strings"
 	"testing"
 
@@ -16,6 +17,7 @@ type bookSheet struct {
 	at         string
 	rows       [][]any
 	hiddenRows []int
+	hiddenCols string // columns to hide ("B", "C:D"), "" for none
 }
 
 // sheetsBook is a workbook (written by excelize) of the sheets given, in
@@ -42,6 +44,11 @@ func sheetsBook(t testing.TB, sheets ...bookSheet) []byte {
 		}
 		for _, r := range s.hiddenRows {
 			f.SetRowVisible(s.name, r, false)
+		}
+		if s.hiddenCols != "" {
+			if err := f.SetColVisible(s.name, s.hiddenCols, false); err != nil {
+				t.Fatal(err)
+			}
 		}
 	}
 	// Hidden once every sheet exists and a visible one is active (a
@@ -85,7 +92,7 @@ func TestWorkbookSheetChoice(t *testing.T) {
 	}
 	hiddenFirst := sheetsBook(t, bookSheet{name: "old", hidden: true, rows: sheetDraft}, bookSheet{name: "data", rows: sheetData})
 	d, err := read(hiddenFirst, "")
-	if err != nil || d.X[0] != 0.5 || d.Sheet == nil || *d.Sheet != (SheetRead{Name: "data", Sheets: 2}) {
+	if err != nil || d.X[0] != 0.5 || d.Sheet == nil || !reflect.DeepEqual(*d.Sheet, SheetRead{Name: "data", Sheets: 2}) {
 		t.Fatalf("hidden first sheet: %v %+v, want the visible sheet data", err, d)
 	}
 	d, err = read(hiddenFirst, "old")
@@ -126,8 +133,36 @@ func TestWorkbookHiddenRows(t *testing.T) {
 	if err != nil || d.N != 4 || d.Sheet.HiddenRows != 2 {
 		t.Fatalf("%v %+v %+v, want 4 rows, 2 of them hidden", err, d, d.Sheet)
 	}
-	if got, want := d.Sheet.HiddenRowsNote(), "2 of the rows read are hidden in the sheet"; !strings.HasPrefix(got, want) {
+	if got, want := d.Sheet.HiddenNote(), "2 of the rows read are hidden in the sheet"; !strings.HasPrefix(got, want) {
 		t.Errorf("note %q, want it to start %q", got, want)
+	}
+}
+
+// Hidden columns are read, as the data they are, and those read are
+// named, in the sheet's order, with their letters (the table starting at
+// column B: the letters are the sheet's); a hidden column not read is not.
+func TestWorkbookHiddenColumns(t *testing.T) {
+	rows := [][]any{{"y", "a", "b", "note"}, {1, 0.5, 3, "x"}, {2, 0.1, 4, "x"}, {1, 0.7, 5, "x"}, {2, 0.2, 6, "x"}}
+	raw := sheetsBook(t, bookSheet{name: "s", at: "B1", rows: rows, hiddenCols: "C:E"})
+	opt := Options{Outcome: "y", Predictors: []string{"b", "a"}}
+	d, err := readBytes(raw, "b.xlsx", opt)
+	if err != nil || d.N != 4 || d.X[0] != 0.5 && d.X[0] != 3 {
+		t.Fatalf("%v %+v", err, d)
+	}
+	if want := []HiddenColumn{{"a", "C"}, {"b", "D"}}; !reflect.DeepEqual(d.Sheet.HiddenColumns, want) {
+		t.Errorf("hidden columns %+v, want %+v", d.Sheet.HiddenColumns, want)
+	}
+	if got, want := d.Sheet.HiddenNote(), `columns "a" (column C) and "b" (column D), which are read, are hidden in the sheet; they were read as data like the others`; !strings.HasPrefix(got, want) {
+		t.Errorf("note %q, want it to start %q", got, want)
+	}
+	opt.Predictors = []string{"b"}
+	raw = sheetsBook(t, bookSheet{name: "s", rows: rows, hiddenRows: []int{3}, hiddenCols: "B"})
+	if d, err := readBytes(raw, "b.xlsx", opt); err != nil || d.Sheet.HiddenColumns != nil || d.Sheet.HiddenNote() != "1 of the rows read is hidden in the sheet (a hidden row, or one a filter hides); it was read as data like the others (delete it, or leave it out with a subset condition, if it should not count)" {
+		t.Errorf("a hidden column not read: %v %+v", err, d.Sheet)
+	}
+	opt.Predictors = []string{"a", "b"}
+	if d, err := readBytes(raw, "b.xlsx", opt); err != nil || !strings.HasSuffix(d.Sheet.HiddenNote(), `if it should not count); column "a" (column B), which is read, is hidden in the sheet; it was read as data like the others (a hidden column is often an old version kept out of view: check that it is the column meant)`) {
+		t.Errorf("a hidden row and a hidden column: %v %q", err, d.Sheet.HiddenNote())
 	}
 }
 
