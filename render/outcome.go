@@ -8,6 +8,7 @@ import (
 	"ordplan/internal/words"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 
@@ -18,7 +19,7 @@ import (
 func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	d.h(2, "Outcome: "+mdText(or.Outcome.Label))
 	sampling := r.Analysis != nil && r.Analysis.Errors.Sampling
-	writeData(d, or, sampling, r.Plan.Data.Cluster)
+	writeData(d, or, sampling, r.Plan.Data.Cluster, r.DataParts)
 	writeFreeSets(d, or)
 	writeModelTable(d, or, sampling)
 	writeOverallFit(d, or)
@@ -41,7 +42,7 @@ func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	writeNewRows(d, r, or)
 }
 
-func writeData(d *doc, or *runner.OutcomeResult, sampling bool, cluster string) {
+func writeData(d *doc, or *runner.OutcomeResult, sampling bool, cluster string, parts []runner.DataRef) {
 	ds := or.AsRead()
 	d.h(3, "Data")
 	obs := ""
@@ -61,6 +62,13 @@ func writeData(d *doc, or *runner.OutcomeResult, sampling bool, cluster string) 
 		if n := s.HiddenNote(); n != "" {
 			obs += " " + mdText(capitalize(n)) + "."
 		}
+	}
+	names := make([]string, len(parts))
+	for i, p := range parts {
+		names[i] = p.File
+	}
+	if ps := data.PartSheets(ds.Parts, names); ps != "" {
+		obs += " The rows of the workbook parts were read from " + mdText(ps) + "."
 	}
 	d.p("Outcome column %s, %d categories in this order: %s. %d rows read, %d used; %s.%s",
 		mdCode(or.Outcome.Column), len(ds.Categories), mdText(strings.Join(ds.Categories, " < ")), ds.RowsRead, ds.N, ds.DropSummary(), obs)

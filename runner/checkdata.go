@@ -32,6 +32,7 @@ func CheckData(p *plan.Plan) ([]string, error) {
 		if err := a.CheckDesign(r, ld.Design, ld.FitData); err != nil {
 			return nil, err
 		}
+		warnings = append(warnings, pointWarnings(r.Outcome, ld.Data)...)
 		// The rows the fits use: on imputed data each imputed set's (run
 		// counts the clusters in set 1's rows), not the original file's
 		// complete rows.
@@ -96,6 +97,7 @@ func FewClustersWarnings(res *Result) []string {
 		if an == nil || i >= len(an.Outcomes) || or.Data == nil {
 			continue
 		}
+		out = append(out, pointWarnings(an.Outcomes[i].Outcome, or.AsRead())...)
 		if w := an.FewClusters(an.Outcomes[i], or.Data); w != "" {
 			out = append(out, fmt.Sprintf("outcome %s: %s", an.Outcomes[i].Outcome, w))
 		}
@@ -108,6 +110,20 @@ func FewClustersWarnings(res *Result) []string {
 		if w := ProfileUndefinedWarning(an.Outcomes[i].Outcome, profileUndefined(an, or)); w != "" {
 			out = append(out, w)
 		}
+	}
+	return out
+}
+
+// pointWarnings are the notes of the data read for outcome on columns
+// whose points may separate thousands (data.Dataset.PointNotes), which
+// check and run print on the terminal as warnings (the report has them).
+func pointWarnings(outcome string, ds *data.Dataset) []string {
+	if ds == nil {
+		return nil
+	}
+	out := make([]string, len(ds.PointNotes))
+	for i, n := range ds.PointNotes {
+		out[i] = fmt.Sprintf("outcome %s: %s", outcome, n)
 	}
 	return out
 }

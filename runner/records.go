@@ -510,11 +510,27 @@ func dataRef(r *Result) DataRef {
 // for the same data in any format, does not).
 func withSheet(ref DataRef, r *Result) DataRef {
 	var sheets []*data.SheetRead
+	var parts [][]*data.SheetRead // by part
 	for _, or := range r.Outcomes {
-		if ds := or.AsRead(); ds != nil {
-			sheets = append(sheets, ds.Sheet)
+		ds := or.AsRead()
+		if ds == nil {
+			continue
+		}
+		sheets = append(sheets, ds.Sheet)
+		for i, p := range ds.Parts {
+			if i == len(parts) {
+				parts = append(parts, nil)
+			}
+			parts[i] = append(parts[i], p.Sheet)
 		}
 	}
 	ref.setSheet(sheets)
+	if len(parts) == len(ref.Parts) && len(parts) > 0 {
+		// A copy: decisions.json's parts, the same in any format, name no sheet.
+		ref.Parts = slices.Clone(ref.Parts)
+		for i := range ref.Parts {
+			ref.Parts[i].setSheet(parts[i])
+		}
+	}
 	return ref
 }

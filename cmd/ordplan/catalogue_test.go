@@ -242,6 +242,7 @@ func catalogueData(t *testing.T, dir string) {
 		"nadot.csv":     "y,a,b\n1,0.5,1\n2,0.7,n/a\n3,0.1,1\n",
 		"openquote.csv": "y,a,b\n1,0.5,1\n2,\"0.7,0\n3,0.1,1\n1,0.3,0\n",
 		"semipt.csv":    "y;a;b\n1;0.5;1\n2;0.7;0\n3;0.1;1\n",
+		"threedec.csv":  "y;a;b\n1;1.250;1\n2;2.375;0\n3;13.125;1\n1;4.500;0\n2;7.125;1\n3;9.750;0\n1;3.625;1\n2;5.875;0\n",
 		"ragged.csv":    "y,a,b\n1,0.5,1\n2,0.7\n3,0.1,0\n",
 		"text.csv":      "y,a,b\n1,0.5,1\n2,abc,0\n3,0.1,0\n",
 		"nan.csv":       "y,a,b\n1,0.5,1\n2,nan,0\n3,0.1,0\n",
@@ -1284,6 +1285,25 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{"ordplan: --predictors: level \"NA\" of column \"g\" is also one of the missing-value markers \"\", \"NA\", \"NaN\", \".\" of ordplan fit, which cannot change them: every cell \"NA\" is read as missing, never as this value; run a plan (ordplan init writes one) whose data.missing_values lists the markers the data use without \"NA\", such as [\"\", \"NaN\", \".\"], or recode the value in the data\n"}},
 		{id: "D39", name: "points that separate thousands, in a semicolon file read with a decimal point", args: fitArgs(d("demixed.csv"), "--predictors", "a,b", "--delimiter", "semicolon"), code: 1,
 			want: []string{"ordplan: demixed.csv:2: column \"a\": value \"3.473\" looks like 3473 written with a thousands separator: every value of the column with a point has three digits after it and would be 1000 or more without it (3 values), and the others are integers below 1000 written without a point (3, such as \"313\"); a decimal point reads it as 3.473. Write the numbers without thousands separators (3473); or, if the points are decimal points, write the whole numbers with three decimals too (\"313.000\")\n"}},
+		{id: "D39", name: "points that separate thousands in a part of data held as parts", args: []string{"fit", "--outcome", "y", "--predictors", "a,b", "--delimiter", "semicolon", "--parts", "semipt.csv,demixed.csv"}, setup: inDataFolder, code: 1,
+			want: []string{"ordplan: demixed.csv:2: column \"a\": value \"3.473\" looks like 3473 written with a thousands separator: every value of the column with a point has three digits after it"}},
+		{id: "D44", name: "a column whose every value has a point and three digits, in a semicolon file: noted in ordplan fit's data line", args: fitArgs(d("threedec.csv"), "--predictors", "a,b", "--delimiter", "semicolon"), code: 0,
+			want: []string{"; Column a: every value is written with a point and three digits after it (8 values, such as 1.250), none otherwise, in a semicolon-separated file read with a decimal point (data.decimal: point): they were read as decimals (1.250); if the points separate thousands (1250), every value was read a thousand times too small: write the numbers without separators. The column's possible range in the plan (dictionary.a.range) settles it: check and run refuse a value outside it"}},
+		{id: "D44", name: "a column whose every value has a point and three digits: warned by check and run, noted in the report", args: []string{"run"}, plan: edit("  file: d.csv\n", "  file: threedec.csv\n  delimiter: semicolon\n"), code: 0,
+			check: func(t *testing.T, dir, out, errs string) {
+				plan := filepath.Join(dir, "D44.yaml")
+				want := "warning: " + plan + ": outcome y: Column a: every value is written with a point and three digits after it (8 values, such as 1.250), none otherwise, in a semicolon-separated file read with a decimal point (data.decimal: point): they were read as decimals (1.250); if the points separate thousands (1250), every value was read a thousand times too small: write the numbers without separators. The column's possible range in the plan (dictionary.a.range) settles it: check and run refuse a value outside it\n"
+				if !strings.Contains(errs, want) {
+					t.Errorf("run: want %q in\n%s", want, errs)
+				}
+				if _, e, code := runCLI("check", plan); code != 0 || !strings.Contains(e, want) {
+					t.Errorf("check: exit %d, want %q in\n%s", code, want, e)
+				}
+				md, err := os.ReadFile(filepath.Join(dir, "D44-out", "report.md"))
+				if want := "Column a: every value is written with a point and three digits after it"; err != nil || !strings.Contains(string(md), want) {
+					t.Errorf("report.md lacks %q (%v)", want, err)
+				}
+			}},
 		{id: "D39", name: "points that separate thousands, at check", args: []string{"check"}, plan: edit("  file: d.csv\n", "  file: demixed.csv\n  delimiter: semicolon\n"), code: 1,
 			want: []string{`demixed.csv:2: column "a": value "3.473" looks like 3473 written with a thousands separator`}},
 		{id: "D40", name: "a word for a missing value in a numeric column", args: fitArgs(d("naslash.csv"), "--predictors", "a,b"), code: 1,
@@ -1395,6 +1415,28 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{"ordplan: sheets.xlsx:3: cell E3 holds \"checked 2024-03\", right of the table, whose header (row 1) names 3 columns, up to column C: if it is a note beside the data, move or delete it; if it is data, give its column a name in the header row\n"}},
 		{id: "X25", name: "a workbook column the fit reads that the sheet hides (read, and named)", args: fitArgs(d("hiddencol.xlsx"), "--predictors", "a,b", "--sheet", "survey", "--header-row", "3"), code: 0,
 			want: []string{`hiddencol.xlsx, sheet "survey": 120 rows read, 120 used; no rows dropped for missing values; column "a" (column B), which is read, is hidden in the sheet; it was read as data like the others (a hidden column is often an old version kept out of view: check that it is the column meant)`}},
+		{id: "X25", name: "workbook parts: the sheet of each part and the hidden columns read named", args: []string{"fit", "--outcome", "y", "--predictors", "a,b", "--sheet", "survey", "--header-row", "3", "--parts", "book.xlsx,hiddencol.xlsx"}, setup: inDataFolder, code: 0,
+			want: []string{`parts book.xlsx, hiddencol.xlsx: 240 rows read, 240 used; no rows dropped for missing values; the workbook parts were read from book.xlsx, sheet "survey"; hiddencol.xlsx, sheet "survey" (column "a" (column B), which is read, is hidden in the sheet; it was read as data like the others (a hidden column is often an old version kept out of view: check that it is the column meant))`}},
+		{id: "X25", name: "workbook parts in a plan: run.json names each part's sheet and its hidden columns read, the report too", args: []string{"run"}, plan: edit("  file: d.csv\n", "  parts: [book.xlsx, hiddencol.xlsx]\n  sheet: survey\n  header_row: 3\n"), code: 0,
+			check: func(t *testing.T, dir, out, errs string) {
+				rj, err := os.ReadFile(filepath.Join(dir, "X25-out", "run.json"))
+				if want := "\"file\": \"hiddencol.xlsx\",\n        \"sha256\": "; err != nil || !strings.Contains(string(rj), want) {
+					t.Fatalf("run.json lacks %q (%v)", want, err)
+				}
+				for _, want := range []string{"\"sheet\": \"survey\"\n      },\n      {\n        \"file\": \"hiddencol.xlsx\"", "\"sheet\": \"survey\",\n        \"hidden_columns_read\": [\n          \"a\"\n        ]"} {
+					if !strings.Contains(string(rj), want) {
+						t.Errorf("run.json lacks %q:\n%s", want, rj)
+					}
+				}
+				dec, _ := os.ReadFile(filepath.Join(dir, "X25-out", "decisions.json"))
+				if bytes.Contains(dec, []byte("survey")) {
+					t.Errorf("decisions.json names a sheet")
+				}
+				md, _ := os.ReadFile(filepath.Join(dir, "X25-out", "report.md"))
+				if want := `The rows of the workbook parts were read from book.xlsx, sheet "survey"; hiddencol.xlsx, sheet "survey" (column "a" (column B), which is read, is hidden in the sheet;`; !strings.Contains(string(md), want) {
+					t.Errorf("report.md lacks %q", want)
+				}
+			}},
 		{id: "X24", name: "a workbook's sheet named that is empty", args: fitArgs(d("sheets.xlsx"), "--predictors", "a", "--sheet", "blank"), code: 1,
 			want: []string{"ordplan: sheets.xlsx: sheet \"blank\" is empty; the workbook's other sheets: \"notes\", \"data\", \"old\" (hidden) (data.sheet, or --sheet, names the one to read)\n"}},
 		{id: "X17", name: "a spreadsheet error value in a used column", args: fitArgs(d("formula.xlsx"), "--predictors", "b"), code: 1,

@@ -187,6 +187,9 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 		return fail(stderr, err)
 	}
 	drop := ds.DropSummary()
+	if ps := data.PartSheets(ds.Parts, nil); ps != "" {
+		drop += "; the workbook parts were read from " + ps
+	}
 	for _, n := range ds.Notes {
 		drop += "; " + strings.TrimSuffix(n, ".")
 	}

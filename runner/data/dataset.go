@@ -78,8 +78,13 @@ type Dataset struct {
 	// Notes are remarks of the steps after reading that the user must see
 	// (a declared level dropped because no row has it).
 	Notes []string
+	// PointNotes are the notes (in Notes too) on columns whose every value
+	// has a point and three digits after it, which may separate thousands
+	// (thousandsPoints): check and run print them on the terminal too.
+	PointNotes []string
 	// Sheet names the worksheet of a workbook the rows come from, and
-	// what of it is hidden; nil for other files and for parts.
+	// what of it is hidden; nil for other files and for parts (each
+	// workbook part's is in Parts).
 	Sheet *SheetRead
 	// Parts are the files of a data set read as parts (LoadFiles), with
 	// the numbering of their lines in Lines; nil for one file.

@@ -254,8 +254,9 @@ func (r *reader) thousandsPoints() error {
 			// Every value has a point and three digits after it: decimals
 			// written with three places, or thousands separated; said, not
 			// refused.
-			r.pointNotes = append(r.pointNotes, fmt.Sprintf("Every value of column %s is written with a point and three digits after it (%d values, such as %s), none otherwise: in a %s-separated file read with a decimal point (data.decimal: point) they are decimals, %s; if the points separate thousands (%s), the values were read a thousand times too small: write the numbers without separators",
-				cols[k].name, e.points, e.example, d.DelimiterWord(), e.example, strings.Replace(e.example, ".", "", 1)))
+			r.pointNotes = append(r.pointNotes, fmt.Sprintf("Column %s: every value is written with a point and three digits after it (%d values, such as %s), none otherwise, in a %s-separated file read with a decimal point (data.decimal: point): they were read as decimals (%s); if the points separate thousands (%s), every value was read a thousand times too small: write the numbers without separators. The column's possible range in the plan (dictionary.%s.range) settles it: check and run refuse a value outside it",
+				cols[k].name, e.points, e.example, d.DelimiterWord(), e.example, strings.Replace(e.example, ".", "", 1), cols[k].name))
+			r.pointCols = append(r.pointCols, cols[k].name)
 		}
 		if e.conclusive() {
 			whole := strings.Replace(e.example, ".", "", 1)

@@ -26,6 +26,9 @@ type PartSpan struct {
 	File   string
 	Offset int
 	Last   int
+	// Sheet names the worksheet a workbook part was read from, as
+	// Dataset.Sheet does for one file; nil for a part of another format.
+	Sheet *SheetRead
 }
 
 // PartsName names a data set held as parts in messages: the files when
@@ -59,6 +62,10 @@ func LoadFiles(paths []string, opt Options) (*Dataset, error) {
 		return nil, &Error{File: r.file, Msg: err.Error()}
 	}
 	if err := r.header(cols); err != nil {
+		return nil, pr.local(err)
+	}
+	pr.whole = r
+	if err := pr.checkPart(); err != nil {
 		return nil, pr.local(err)
 	}
 	d, err := r.rows()
@@ -117,6 +124,67 @@ type partRecords struct {
 	perm    []int    // field of the part's record for each column of the header
 	next    int      // the next part to open
 	line    int      // the line (in the part) of the last record read
+	// whole is the reader of the data set, once its header has given the
+	// used columns (checkPart); noted: by column, the parts whose points
+	// may separate thousands, and its note in whole.pointNotes
+	whole *reader
+	noted map[string]*partNote
+}
+
+// partNote is a note on the points of a column (thousandsPoints) over the
+// parts that give it: the first part's words, the index of the note in
+// the data set's notes, and the parts.
+type partNote struct {
+	text  string
+	at    int
+	files []string
+}
+
+// checkPart makes the checks of the used columns before the rows
+// (reader.columnChecks: the columns a worksheet hides, points that may
+// separate thousands) on the part being read, as on a file of its own,
+// its used columns found in its header's order: a refusal names the
+// part's file and line, a note the parts it holds for; the part's sheet
+// is recorded (PartSpan.Sheet).
+func (p *partRecords) checkPart() error {
+	sub := *p.cur
+	sub.opt, sub.missing, sub.numCodes, sub.pointNotes, sub.pointCols = p.whole.opt, p.whole.missing, p.whole.numCodes, nil, nil
+	sub.cols = make([]usedCol, len(p.whole.cols))
+	for i, c := range p.whole.cols {
+		c.index = p.perm[c.index]
+		sub.cols[i] = c
+	}
+	if err := sub.columnChecks(); err != nil {
+		return inPart(err)
+	}
+	if sr, ok := sub.cr.(*sheetRecords); ok {
+		// Read on: its hidden rows are counted as the part's rows are.
+		p.spans[len(p.spans)-1].Sheet = &sr.read
+	}
+	path := p.paths[p.next-1]
+	for i, n := range sub.pointNotes {
+		col := sub.pointCols[i]
+		if p.noted == nil {
+			p.noted = map[string]*partNote{}
+		}
+		pn := p.noted[col]
+		if pn == nil {
+			pn = &partNote{text: n, at: len(p.whole.pointNotes)}
+			p.noted[col] = pn
+			p.whole.pointNotes = append(p.whole.pointNotes, "")
+			p.whole.pointCols = append(p.whole.pointCols, col)
+		}
+		pn.files = append(pn.files, path)
+		where := "In the part " + pn.files[0]
+		switch n := len(pn.files); {
+		case n > 3:
+			where = fmt.Sprintf("In %d parts (%s, ..., %s)", n, pn.files[0], pn.files[n-1])
+		case n > 1:
+			where = "In the parts " + strings.Join(pn.files, ", ")
+		}
+		p.whole.pointNotes[pn.at] = where + ", " + strings.ToLower(pn.text[:1]) + pn.text[1:] // "Column w: ..."
+	}
+	return nil
 }
 
 // partError is a problem with a part as a whole: its file, what is wrong.
@@ -149,7 +217,7 @@ func (p *partRecords) open(k int) error {
 		}
 		return inPart(err)
 	}
-	sub := &reader{file: path, opt: Options{Dialect: p.dialect}}
+	sub := &reader{file: path, opt: Options{Dialect: p.dialect}, raw: raw}
 	if err := sub.start(bytes.NewReader(raw)); err != nil {
 		return inPart(err)
 	}
@@ -172,6 +240,9 @@ func (p *partRecords) open(k int) error {
 		p.perm[i] = where[n]
 	}
 	p.cur, p.next = sub, k+1
+	if p.whole != nil {
+		return p.checkPart()
+	}
 	return nil
 }
 

@@ -6,6 +6,7 @@ import (
 	"os"
 	"path/filepath"
 	"reflect"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -111,5 +112,61 @@ func TestInPart(t *testing.T) {
 	other := errors.New("not a data error")
 	if got := inPart(other); got != other {
 		t.Errorf("a plain error became %v", got)
+	}
+}
+
+// Parts get the checks of the used columns a file gets before its rows
+// (columnChecks), each part on its own through its header's order: points
+// that separate thousands are refused in the part that writes them, at
+// its file and line; a column whose every value has a point and three
+// digits is noted once, naming the parts; a workbook part's sheet, its
+// hidden rows and the hidden columns read are recorded (PartSpan.Sheet).
+func TestPartsColumnChecks(t *testing.T) {
+	dir := t.TempDir()
+	write := func(name string, b []byte) string {
+		p := filepath.Join(dir, name)
+		if err := os.WriteFile(p, b, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	opt := Options{Outcome: "y", Predictors: []string{"a", "w"}, Dialect: Dialect{Delimiter: ';'}}
+	a := write("a.csv", []byte("y;a;w\n1;0.5;1.250\n2;1.5;2.500\n"))
+	b := write("b.csv", []byte("w;y;a\n3.473;1;2\n313;2;0.25\n")) // w: thousands, in another column order
+	c := write("c.csv", []byte("y;a;w\n2;0.5;4.125\n1;0.75;7.000\n"))
+	if _, err := LoadFiles([]string{a, b}, opt); err == nil || !strings.HasPrefix(err.Error(), b+`:2: column "w": value "3.473" looks like 3473 written with a thousands separator`) {
+		t.Errorf("thousands in the second part: %v", err)
+	}
+	d, err := LoadFiles([]string{a, c}, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := "In the parts " + a + ", " + c + `, column w: every value is written with a point and three digits after it (2 values, such as 1.250)`
+	if len(d.PointNotes) != 1 || !strings.HasPrefix(d.PointNotes[0], want) || !slices.Contains(d.Notes, d.PointNotes[0]) {
+		t.Errorf("notes %q, want one starting %q", d.PointNotes, want)
+	}
+	if d, err := LoadFiles([]string{c, a}, Options{Outcome: "y", Predictors: []string{"a"}, Dialect: Dialect{Delimiter: ';'}}); err != nil || d.PointNotes != nil {
+		t.Errorf("w not read: %v %q", err, d.PointNotes)
+	}
+
+	rows := [][]any{{"y", "a", "w"}, {1, 0.5, 3}, {2, 0.1, 4}, {1, 0.7, 5}}
+	x := write("x.xlsx", sheetsBook(t, bookSheet{name: "data", rows: rows, hiddenRows: []int{3}, hiddenCols: "C"}))
+	y := write("y.xlsx", sheetsBook(t, bookSheet{name: "draft", hidden: true, rows: rows}, bookSheet{name: "data", rows: rows}))
+	opt = Options{Outcome: "y", Predictors: []string{"a", "w"}}
+	d, err = LoadFiles([]string{x, y}, opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d.Sheet != nil || d.Parts[0].Sheet == nil || d.Parts[1].Sheet == nil {
+		t.Fatalf("sheets %+v %+v", d.Sheet, d.Parts)
+	}
+	if s := *d.Parts[0].Sheet; s.Name != "data" || s.HiddenRows != 1 || !reflect.DeepEqual(s.HiddenColumns, []HiddenColumn{{"w", "C"}}) {
+		t.Errorf("first part's sheet %+v", s)
+	}
+	if s := *d.Parts[1].Sheet; s.Name != "data" || s.HiddenRows != 0 || s.HiddenColumns != nil || s.Sheets != 2 {
+		t.Errorf("second part's sheet %+v", s)
+	}
+	if got, want := PartSheets(d.Parts, nil), x+`, sheet "data" (1 of the rows read is hidden in the sheet`; !strings.HasPrefix(got, want) || !strings.HasSuffix(got, "; "+y+`, sheet "data"`) {
+		t.Errorf("PartSheets %q", got)
 	}
 }

@@ -75,7 +75,7 @@ func readBytes(raw []byte, name string, opt Options) (*Dataset, error) {
 	if err := r.header(cols); err != nil {
 		return nil, err
 	}
-	if err := r.thousandsPoints(); err != nil {
+	if err := r.columnChecks(); err != nil {
 		return nil, err
 	}
 	if cr, ok := r.cr.(*columnRecords); ok {
@@ -117,9 +117,10 @@ type reader struct {
 	// are numbers (readNumbers; read only once the rows are read)
 	numCodes map[string][]float64
 	head     []byte // the first bytes of CSV text, for SuggestDialect
-	// pointNotes: the columns whose points may separate thousands
-	// (thousandsPoints), for Dataset.Notes
-	pointNotes []string
+	// pointNotes: the notes on columns whose points may separate
+	// thousands (thousandsPoints), for Dataset.Notes and PointNotes, and
+	// pointCols the columns they are of
+	pointNotes, pointCols []string
 }
 
 func (r *reader) fail(line int, column, format string, args ...any) *Error {
@@ -168,7 +169,22 @@ func (r *reader) read(in io.Reader) (*Dataset, error) {
 	if err := r.header(cols); err != nil {
 		return nil, err
 	}
+	if err := r.columnChecks(); err != nil {
+		return nil, err
+	}
 	return r.sheetRows()
+}
+
+// columnChecks are the checks of the used columns (r.cols, found in the
+// header) made before the rows are read, on a file, or on each part of
+// data held as parts (partRecords.checkPart): the used columns a
+// worksheet hides from view (markHidden), and points that may separate
+// thousands (thousandsPoints).
+func (r *reader) columnChecks() error {
+	if sr, ok := r.cr.(*sheetRecords); ok {
+		sr.markHidden(r.cols)
+	}
+	return r.thousandsPoints()
 }
 
 // header reads the header line and finds the used columns in it.
@@ -192,13 +208,6 @@ func (r *reader) header(cols []usedCol) error {
 		cols[i].index = j
 	}
 	r.cols = cols
-	if sr, ok := r.cr.(*sheetRecords); ok {
-		fields := make([]int, len(cols))
-		for i, c := range cols {
-			fields[i] = c.index
-		}
-		sr.markHidden(fields, names)
-	}
 	for _, c := range cols {
 		if r.asNumbers(c) {
 			r.readNumbers(c.name)

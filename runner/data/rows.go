@@ -108,6 +108,7 @@ func (r *reader) finish(t *rowTally, d *Dataset) (*Dataset, error) {
 	}
 	if !opt.Part {
 		d.Notes = append(d.Notes, r.pointNotes...)
+		d.PointNotes = r.pointNotes
 	}
 	if opt.Sampling && !opt.Unscaled {
 		total := weightTotal(d.Weights)

@@ -481,19 +481,19 @@ func hiddenColumns(f *excelize.File, sheet string, width int) map[int]bool {
 	return out
 }
 
-// markHidden names, in SheetRead.HiddenColumns, the used columns (fields
-// of the header, 0-based, with their names) the sheet hides from view.
-func (s *sheetRecords) markHidden(fields []int, names []string) {
+// markHidden names, in SheetRead.HiddenColumns, the used columns the
+// sheet hides from view, in the sheet's order.
+func (s *sheetRecords) markHidden(cols []usedCol) {
 	s.read.HiddenColumns = nil
 	if len(s.hiddenCols) == 0 {
 		return
 	}
-	fields = slices.Clone(fields)
-	slices.Sort(fields)
-	for _, j := range slices.Compact(fields) {
-		if s.hiddenCols[s.lead+j+1] {
-			letters, _ := excelize.ColumnNumberToName(s.lead + j + 1)
-			s.read.HiddenColumns = append(s.read.HiddenColumns, HiddenColumn{Name: names[j], Letters: letters})
+	cols = slices.Clone(cols)
+	slices.SortFunc(cols, func(a, b usedCol) int { return a.index - b.index })
+	for i, c := range cols {
+		if s.hiddenCols[s.lead+c.index+1] && (i == 0 || cols[i-1].index != c.index) {
+			letters, _ := excelize.ColumnNumberToName(s.lead + c.index + 1)
+			s.read.HiddenColumns = append(s.read.HiddenColumns, HiddenColumn{Name: c.name, Letters: letters})
 		}
 	}
 }
@@ -506,6 +506,30 @@ func (s *SheetRead) Where() string {
 		w += " (a hidden sheet, read because data.sheet or --sheet names it)"
 	}
 	return w
+}
+
+// PartSheets says, for data held as parts, the worksheet each workbook
+// part was read from and what of it is hidden, in the words Where and
+// HiddenNote give one workbook: `p1.xlsx, sheet "data"; p2.xlsx, sheet
+// "data" (...)`, each part named by names (as the plan names it), or by
+// its file when names has none for it; "" when no part is a workbook.
+func PartSheets(parts []PartSpan, names []string) string {
+	var out []string
+	for i, p := range parts {
+		if p.Sheet == nil {
+			continue
+		}
+		name := p.File
+		if i < len(names) && names[i] != "" {
+			name = names[i]
+		}
+		s := name + ", " + p.Sheet.Where()
+		if n := p.Sheet.HiddenNote(); n != "" {
+			s += " (" + n + ")"
+		}
+		out = append(out, s)
+	}
+	return strings.Join(out, "; ")
 }
 
 // HiddenNote says how many of the rows read the sheet hides from view,

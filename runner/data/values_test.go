@@ -53,7 +53,7 @@ func TestThousandsPointsRefused(t *testing.T) {
 	// Every value with a point and three digits, no integer: three
 	// decimals, or thousands; read, with a note.
 	d, err := Read(strings.NewReader(rows(";", "1.250", "2.375", "13.125")), "t.csv", opt(semi))
-	if want := "Every value of column a is written with a point and three digits after it (3 values, such as 1.250), none otherwise: in a semicolon-separated file read with a decimal point (data.decimal: point) they are decimals, 1.250; if the points separate thousands (1250), the values were read a thousand times too small: write the numbers without separators"; err != nil || len(d.Notes) != 1 || d.Notes[0] != want {
+	if want := "Column a: every value is written with a point and three digits after it (3 values, such as 1.250), none otherwise, in a semicolon-separated file read with a decimal point (data.decimal: point): they were read as decimals (1.250); if the points separate thousands (1250), every value was read a thousand times too small: write the numbers without separators. The column's possible range in the plan (dictionary.a.range) settles it: check and run refuse a value outside it"; err != nil || len(d.Notes) != 1 || d.Notes[0] != want || !slices.Equal(d.PointNotes, d.Notes) {
 		t.Errorf("three decimals everywhere: %v %q", err, d.Notes)
 	}
 	if d, err := Read(strings.NewReader(rows(";", "1.250", "2.375", "13.125", "0.5")), "t.csv", opt(semi)); err != nil || len(d.Notes) != 0 {
