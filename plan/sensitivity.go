@@ -116,6 +116,9 @@ func (d *decoder) readSensitivity(root, n *yaml.Node, p *Plan, withData bool) *s
 				if line, dup := names[name]; dup {
 					d.errorf(deref(v), m.at("name"), "%s already names the sensitivity analysis at line %d; give each its own name", quote(name), line)
 				}
+				if k := strings.ToLower(strings.TrimSpace(name)); k == "primary" || k == "primary analysis" {
+					d.errorf(deref(v), m.at("name"), "%s names the primary analysis in the report and its tables; give the sensitivity analysis a name of its own", quote(name))
+				}
 				names[name] = m.node.Line
 				s.Name = name
 			}

@@ -126,6 +126,8 @@ func TestSensitivityBad(t *testing.T) {
 			[]string{`p.yaml:23:7: sensitivity[0].change.covariance: key is given twice (first at line 22)`}},
 		{"same name", ok + item("s1", "again", "      covariance: expected\n"),
 			[]string{`p.yaml:23:11: sensitivity[1].name: "s1" already names the sensitivity analysis at line 19; give each its own name`}},
+		{"the primary's name", item("Primary", "x", "      covariance: sandwich\n"),
+			[]string{`p.yaml:19:11: sensitivity[0].name: "Primary" names the primary analysis in the report and its tables; give the sensitivity analysis a name of its own`}},
 		{"empty why", item("s", `""`, "      covariance: sandwich\n"),
 			[]string{`p.yaml:20:10: sensitivity[0].why: is empty; say why this sensitivity analysis is done`}},
 		{"no why", "  - name: s\n    change: {covariance: sandwich}\n",

@@ -207,3 +207,23 @@ func limitIf(cond bool, s string) string {
 	}
 	return ""
 }
+
+// sensitivityCSV is the table of the chosen model's effects under the
+// primary analysis and each sensitivity analysis (the report's table, full
+// precision); ok is false without sensitivity analyses or a chosen model.
+func sensitivityCSV(r *runner.Result, or *runner.OutcomeResult, level float64, lv string) (kind, about string, head []string, rows [][]string, ok bool) {
+	if len(r.Sensitivity) == 0 || or.Chosen == nil {
+		return "", "", nil, nil, false
+	}
+	add := func(analysis string, m runner.SensitivityModel) {
+		for _, e := range m.Estimates {
+			rows = append(rows, []string{analysis, ParamLabel(or.Chosen.Result, e.Parameter), csvNum(e.Estimate), csvNum(e.StdError), csvNum(e.Lower), csvNum(e.Upper)})
+		}
+	}
+	add("primary", runner.SensitivityModel{Estimates: runner.KeyEstimates(or.Chosen.Result, level)})
+	for _, sr := range r.Sensitivity {
+		add(sr.Sensitivity.Name, runner.PrimaryModelUnder(or.Chosen.ID, sr.Outcome(or.Outcome.Column), level))
+	}
+	about = fmt.Sprintf("the effects of the chosen model, %s, under the primary analysis (primary) and under each sensitivity analysis the plan fixed (by its name), with %s%% intervals; an analysis under which the model was not fitted has no rows (the report says why)", or.Chosen.ID, lv)
+	return "sensitivity", about, []string{"analysis", "parameter", "estimate", "std_error", "low_" + lv, "high_" + lv}, rows, true
+}

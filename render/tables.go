@@ -445,6 +445,10 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		}
 		add("patterns", "observed and expected counts of each category by covariate pattern of the categorical predictors and half of predicted score (Pulkstenis-Robinson tests)", []string{"pattern", "half", "n", "category", "observed", "expected"}, rows)
 	}
+	// The chosen model under each sensitivity analysis.
+	if kind, about, head, rows, ok := sensitivityCSV(r, or, level, lv); ok {
+		add(kind, about, head, rows)
+	}
 	return out
 }
 

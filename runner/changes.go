@@ -102,6 +102,7 @@ func ChangesFrom(prev *Decisions, prevRec *RunRecord, cur *Decisions, cols []Out
 			}
 		}
 	}
+	out = append(out, sensitivityChanges(prev.Sensitivity, cur.Sensitivity)...)
 	if len(out) == 0 {
 		out = append(out, "No decision changed.")
 	}
@@ -407,4 +408,40 @@ func sameJSON(a, b any) bool {
 	x, err1 := json.Marshal(a)
 	y, err2 := json.Marshal(b)
 	return err1 == nil && err2 == nil && string(x) == string(y)
+}
+
+// sensitivityChanges says which sensitivity analyses are new or gone, and
+// under which the chosen model of an outcome changed or it could be run
+// no longer or again, in the current plan's order.
+func sensitivityChanges(prev, cur []SensitivityRecord) []string {
+	var out []string
+	for _, c := range cur {
+		i := slices.IndexFunc(prev, func(p SensitivityRecord) bool { return p.Name == c.Name })
+		if i < 0 {
+			out = append(out, fmt.Sprintf("Sensitivity analysis %s is new.", c.Name))
+			continue
+		}
+		p := prev[i]
+		switch {
+		case p.Error == "" && c.Error != "":
+			out = append(out, fmt.Sprintf("Sensitivity analysis %s could not be run this time.", c.Name))
+			continue
+		case p.Error != "" && c.Error == "":
+			out = append(out, fmt.Sprintf("Sensitivity analysis %s could be run this time.", c.Name))
+			continue
+		}
+		for _, o := range c.Outcomes {
+			for _, po := range p.Outcomes {
+				if po.Outcome == o.Outcome && deref(po.Chosen) != deref(o.Chosen) {
+					out = append(out, fmt.Sprintf("Sensitivity analysis %s: %s: the chosen model changed from %s to %s.", c.Name, o.Outcome, deref(po.Chosen), deref(o.Chosen)))
+				}
+			}
+		}
+	}
+	for _, p := range prev {
+		if !slices.ContainsFunc(cur, func(c SensitivityRecord) bool { return c.Name == p.Name }) {
+			out = append(out, fmt.Sprintf("Sensitivity analysis %s is no longer in the plan.", p.Name))
+		}
+	}
+	return out
 }

@@ -8,6 +8,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -161,6 +162,7 @@ func TestSensitivityAnalysesAsSeparatePlans(t *testing.T) {
 	}
 	primary := *d.Outcomes[0].Chosen
 	report, _ := os.ReadFile(filepath.Join(a, "report.md"))
+	table, _ := os.ReadFile(filepath.Join(a, "table-sensitivity-y.csv"))
 	for i, plan := range separate {
 		s := d.Sensitivity[i]
 		if s.Error != "" || len(s.Outcomes) != 1 {
@@ -189,6 +191,10 @@ func TestSensitivityAnalysesAsSeparatePlans(t *testing.T) {
 				row := fmt.Sprintf("| %s | %s | %s | %s |", e.Parameter, s.Name, numfmt.Est(f.Estimates[e.Parameter]), numfmt.Est(f.StdErrors[e.Parameter]))
 				if !bytes.Contains(report, []byte(row)) {
 					t.Errorf("report.md lacks the row %s", row)
+				}
+				line := fmt.Sprintf("\n%s,%s,%s,%s,", s.Name, e.Parameter, strconv.FormatFloat(e.Estimate, 'g', 12, 64), strconv.FormatFloat(e.StdError, 'g', 12, 64))
+				if !bytes.Contains(table, []byte(line)) {
+					t.Errorf("table-sensitivity-y.csv lacks the line %s", line)
 				}
 			}
 		}
