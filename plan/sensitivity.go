@@ -319,44 +319,62 @@ func shallowCopy(n *yaml.Node) *yaml.Node {
 // its place (made, empty, when absent or null, at where); nil when the
 // value is not a mapping (the read of the plan says so).
 func mappingAt(m *yaml.Node, key string, where *yaml.Node, create bool) *yaml.Node {
-	for i := 0; i+1 < len(m.Content); i += 2 {
-		if k := deref(m.Content[i]); k != nil && k.Kind == yaml.ScalarNode && k.Value == key {
-			v := deref(m.Content[i+1])
-			if isNull(v) && create {
-				v = &yaml.Node{Kind: yaml.MappingNode, Tag: "!!map", Line: where.Line, Column: where.Column}
-			} else if v == nil || v.Kind != yaml.MappingNode {
-				return nil
-			}
-			c := shallowCopy(v)
-			m.Content[i+1] = c
-			return c
+	i := indexOf(m, key)
+	if i < 0 {
+		if !create {
+			return nil
 		}
+		k := &yaml.Node{Kind: yaml.ScalarNode, Tag: "!!str", Value: key, Line: where.Line, Column: where.Column}
+		v := &yaml.Node{Kind: yaml.MappingNode, Tag: "!!map", Line: where.Line, Column: where.Column}
+		m.Content = append(m.Content, k, v)
+		return v
 	}
-	if !create {
+	v := deref(m.Content[i+1])
+	if isNull(v) && create {
+		v = &yaml.Node{Kind: yaml.MappingNode, Tag: "!!map", Line: where.Line, Column: where.Column}
+	} else if v == nil || v.Kind != yaml.MappingNode {
 		return nil
 	}
-	k := &yaml.Node{Kind: yaml.ScalarNode, Tag: "!!str", Value: key, Line: where.Line, Column: where.Column}
-	v := &yaml.Node{Kind: yaml.MappingNode, Tag: "!!map", Line: where.Line, Column: where.Column}
-	m.Content = append(m.Content, k, v)
-	return v
+	c := shallowCopy(v)
+	m.Content[i+1] = c
+	return c
+}
+
+// parentOf gives the mapping inside top that holds the last part of the
+// key path key, and that part: the mappings on the way copied (mappingAt),
+// and, with create, made when absent at where's place. nil when one on
+// the way is not a mapping (or absent, without create).
+func parentOf(top *yaml.Node, key string, where *yaml.Node, create bool) (*yaml.Node, string) {
+	parts := strings.Split(key, ".")
+	m := top
+	for _, part := range parts[:len(parts)-1] {
+		if m = mappingAt(m, part, where, create); m == nil {
+			return nil, ""
+		}
+	}
+	return m, parts[len(parts)-1]
+}
+
+// indexOf gives the index in mapping m of the key named key, or -1.
+func indexOf(m *yaml.Node, key string) int {
+	for i := 0; i+1 < len(m.Content); i += 2 {
+		if k := deref(m.Content[i]); k != nil && k.Kind == yaml.ScalarNode && k.Value == key {
+			return i
+		}
+	}
+	return -1
 }
 
 // setNode sets the key path key of mapping top to val (the change's
 // value node, not copied), its key written at keyNode's place.
 func setNode(top *yaml.Node, key string, keyNode, val *yaml.Node) {
-	parts := strings.Split(key, ".")
-	m := top
-	for _, part := range parts[:len(parts)-1] {
-		if m = mappingAt(m, part, keyNode, true); m == nil {
-			return
-		}
+	m, last := parentOf(top, key, keyNode, true)
+	if m == nil {
+		return
 	}
-	last := parts[len(parts)-1]
-	for i := 0; i+1 < len(m.Content); i += 2 {
-		if k := deref(m.Content[i]); k != nil && k.Kind == yaml.ScalarNode && k.Value == last {
-			m.Content[i+1] = val
-			return
-		}
+	if i := indexOf(m, last); i >= 0 {
+		m.Content[i+1] = val
+		return
 	}
 	k := &yaml.Node{Kind: yaml.ScalarNode, Tag: "!!str", Value: last, Line: keyNode.Line, Column: keyNode.Column}
 	m.Content = append(m.Content, k, val)
@@ -364,18 +382,9 @@ func setNode(top *yaml.Node, key string, keyNode, val *yaml.Node) {
 
 // removeNode takes the key path key out of mapping top.
 func removeNode(top *yaml.Node, key string) {
-	parts := strings.Split(key, ".")
-	m := top
-	for _, part := range parts[:len(parts)-1] {
-		if m = mappingAt(m, part, nil, false); m == nil {
-			return
-		}
-	}
-	last := parts[len(parts)-1]
-	for i := 0; i+1 < len(m.Content); i += 2 {
-		if k := deref(m.Content[i]); k != nil && k.Kind == yaml.ScalarNode && k.Value == last {
+	if m, last := parentOf(top, key, nil, false); m != nil {
+		if i := indexOf(m, last); i >= 0 {
 			m.Content = slices.Delete(m.Content, i, i+2)
-			return
 		}
 	}
 }

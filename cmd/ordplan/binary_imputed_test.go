@@ -89,13 +89,7 @@ func TestBinaryOutcomeImputed(t *testing.T) {
 	tmp := t.TempDir()
 	t.Setenv("TMPDIR", tmp)
 	binaryImputedData(t, dir)
-	write := func(name, src string) string {
-		p := filepath.Join(dir, name)
-		if err := os.WriteFile(p, []byte(src), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		return p
-	}
+	write := func(name, src string) string { return writeIn(t, dir, name, src) }
 	imp := write("imp.yaml", binaryImputedPlan("impute", "  imputation: {sets: 3, iterations: 3, write_sets: true}\n"))
 	const warn = "the parallel-lines tests have nothing to test and are not computed"
 	check := func(what string, code int, errs string, out string) {

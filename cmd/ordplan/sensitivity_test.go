@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"encoding/json"
 	"fmt"
-	"math"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
@@ -12,6 +11,7 @@ import (
 	"strings"
 	"testing"
 
+	"ordplan/internal/testsurvey"
 	"ordplan/render/numfmt"
 )
 
@@ -24,7 +24,7 @@ data:
   missing: drop
 outcomes:
   - column: y
-predictors: [a, b]
+predictors: [x1, x2]
 models:
   approaches: [cumulative, adjacent]
   effects: [parallel, nonparallel]
@@ -47,34 +47,35 @@ const sensitivitySection = `sensitivity:
       data.imputation: {sets: 3, iterations: 2}
 `
 
-// sensitivityData writes sens.csv: a seeded invented study of 300 rows,
-// b missing in about one row in eight.
+// sensitivityData writes sens.csv: 300 rows of the report's invented
+// survey (testsurvey.Report), x2 missing in about one row in eight, each
+// row at one of three sites.
 func sensitivityData(t *testing.T, dir string) {
 	t.Helper()
 	rng := rand.New(rand.NewPCG(20261205, 3))
 	var b strings.Builder
-	b.WriteString("y,a,b,site\n")
+	b.WriteString("y,x1,x2,site\n")
 	for i := 0; i < 300; i++ {
-		a := rng.NormFloat64()
-		x := rng.IntN(2)
-		u := rng.Float64()
-		z := 0.9*a + 0.7*float64(x) + math.Log(u/(1-u))
-		y := 1
-		if z > -0.5 {
-			y = 2
-		}
-		if z > 0.8 {
-			y = 3
-		}
-		bs := fmt.Sprint(x)
+		y, x1, x2 := testsurvey.Report.Row(rng)
+		x2s := strconv.FormatFloat(x2, 'f', 4, 64)
 		if rng.IntN(8) == 0 {
-			bs = "NA"
+			x2s = "NA"
 		}
-		fmt.Fprintf(&b, "%d,%.4f,%s,s%d\n", y, a, bs, 1+i%3)
+		fmt.Fprintf(&b, "%d,%.4f,%s,s%d\n", y, x1, x2s, 1+i%3)
 	}
 	if err := os.WriteFile(filepath.Join(dir, "sens.csv"), []byte(b.String()), 0o644); err != nil {
 		t.Fatal(err)
 	}
+}
+
+// writeIn writes src as dir/name and gives its path.
+func writeIn(t *testing.T, dir, name, src string) string {
+	t.Helper()
+	p := filepath.Join(dir, name)
+	if err := os.WriteFile(p, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return p
 }
 
 type sensDecisions struct {
@@ -127,13 +128,7 @@ func readSensDecisions(t *testing.T, out string) sensDecisions {
 func TestSensitivityAnalysesAsSeparatePlans(t *testing.T) {
 	dir := t.TempDir()
 	sensitivityData(t, dir)
-	write := func(name, src string) string {
-		p := filepath.Join(dir, name)
-		if err := os.WriteFile(p, []byte(src), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		return p
-	}
+	write := func(name, src string) string { return writeIn(t, dir, name, src) }
 	main := write("main.yaml", sensitivityPlan+sensitivitySection)
 	separate := []string{
 		write("subset.yaml", sensitivityPlan+"subset:\n  - {column: site, none_of: [s3]}\n"),
