@@ -39,6 +39,11 @@ func ReadPrevious(prevDir string) (*Decisions, error) {
 	if err := json.Unmarshal(b, &prev); err != nil {
 		return nil, fmt.Errorf("--previous: %s is not a decisions record: %v", filepath.Join(prevDir, "decisions.json"), err)
 	}
+	if prev.Program != "ordplan" {
+		// JSON of another shape ({}) reads as a record of nothing: every
+		// outcome would be listed as new.
+		return nil, fmt.Errorf("--previous: %s is not the decisions record of an ordplan run (it does not say \"program\": \"ordplan\"); --previous names the output folder of an earlier ordplan run (its --out, which holds its decisions.json)", filepath.Join(prevDir, "decisions.json"))
+	}
 	if prev.Simulated != nil {
 		return nil, fmt.Errorf("--previous: %s holds a rehearsal on simulated data (ordplan %s; its decisions.json records simulated_data): a rehearsal's invented data cannot be the earlier run of real data; name the output folder of an earlier ordplan run, or leave --previous out", prevDir, prev.Simulated.Command)
 	}

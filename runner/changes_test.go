@@ -13,7 +13,7 @@ import (
 // run, then what it is now, each with its reason.
 func TestChangesWording(t *testing.T) {
 	dir := t.TempDir()
-	prev := &Decisions{Outcomes: []OutcomeDecisions{{Outcome: "y", Final: map[string]Verdict{
+	prev := &Decisions{Program: "ordplan", Outcomes: []OutcomeDecisions{{Outcome: "y", Final: map[string]Verdict{
 		"cumulative/partial/logit": {Model: "cumulative/partial/logit", Kept: false, Reason: "rejected: likelihood-ratio test against cumulative/nonparallel/logit: chi2(3) = 20.1, p < 0.0001 < alpha 0.05"},
 	}}}}
 	b, err := MarshalStable(prev)

@@ -5,11 +5,14 @@ import (
 	"flag"
 	"fmt"
 	"io"
+	"maps"
 	"os"
 	"path/filepath"
 	"runtime/debug"
 	"slices"
+	"strconv"
 	"strings"
+	"sync"
 
 	"ordplan/plan"
 	"ordplan/render"
@@ -69,6 +72,14 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 	case "schema":
 		return cmdSchema(args[1:], stdout, stderr)
 	case "version", "--version", "-version":
+		fs := newFlags("version", stderr)
+		if stop, code := parseFlags(fs, args[1:]); stop {
+			return code
+		}
+		if fs.NArg() > 0 {
+			fmt.Fprintf(stderr, "ordplan version: unexpected argument %q (it takes none)\n", fs.Arg(0))
+			return exitUsage
+		}
 		if rev := runner.Revision(); rev != "" {
 			fmt.Fprintln(stdout, "ordplan", runner.Version, "("+rev+")")
 		} else {
@@ -119,17 +130,159 @@ var helpAsked bool
 
 // parseFlags parses and reports whether to stop, with the exit code.
 // --help prints the command's help (every flag, each with an example).
+// It is every command's parser of flags, and refuses what the flag package
+// lets through: a flag given twice (the last would silently win, and
+// parseFlags may be called again on the same set for the flags after the
+// plan: planArg), and an empty value of a flag naming a file, folder or
+// server (pathFlags).
 func parseFlags(fs *flag.FlagSet, args []string) (bool, int) {
 	helpAsked = isHelp(args)
 	defer func() { helpAsked = false }()
-	if err := fs.Parse(args); err != nil {
+	uses := flagUsesOf(fs)
+	err := uses.parse(fs, args)
+	if err != nil {
 		if errors.Is(err, flag.ErrHelp) {
 			printCommandHelp(fs.Output(), fs, strings.TrimPrefix(fs.Name(), "ordplan "))
 			return true, exitOK
 		}
 		return true, exitUsage
 	}
+	if msg := uses.problem(fs); msg != "" {
+		fmt.Fprintf(fs.Output(), "%s: %s\n", fs.Name(), msg)
+		return true, exitUsage
+	}
 	return false, 0
+}
+
+// pathFlags are the flags naming a file, a folder or a server, with what
+// they name: given empty (--out=, --previous "") they would name nothing
+// (or the current folder) without a word.
+var pathFlags = map[string]string{
+	"out": "a folder", "previous": "the output folder of an earlier run", "queue": "the server's URL",
+	"data": "a data file", "parts": "the data's part files", "cache": "a folder",
+}
+
+// flagUses are the values given to the flags of one flag set, over every
+// call of parseFlags on it.
+type flagUses struct {
+	given    map[string][]string // the values given to each flag, in order
+	repeated string              // the first flag given a second time
+}
+
+var (
+	flagUsesMu sync.Mutex
+	flagUsesBy = map[*flag.FlagSet]*flagUses{}
+)
+
+// flagUsesOf is the record of fs's flags given so far.
+func flagUsesOf(fs *flag.FlagSet) *flagUses {
+	flagUsesMu.Lock()
+	defer flagUsesMu.Unlock()
+	u := flagUsesBy[fs]
+	if u == nil {
+		u = &flagUses{given: map[string][]string{}}
+		flagUsesBy[fs] = u
+	}
+	return u
+}
+
+// parse runs fs.Parse with each flag's value recording what it is given
+// (countedValue), then puts the values back as they were (the help reads
+// their types).
+func (u *flagUses) parse(fs *flag.FlagSet, args []string) error {
+	var flags []*flag.Flag
+	fs.VisitAll(func(f *flag.Flag) {
+		flags = append(flags, f)
+		f.Value = &countedValue{Value: f.Value, name: f.Name, uses: u}
+	})
+	defer func() {
+		for _, f := range flags {
+			f.Value = f.Value.(*countedValue).Value
+		}
+	}()
+	return fs.Parse(args)
+}
+
+// problem says what is wrong with the flags given ("" when nothing is).
+func (u *flagUses) problem(fs *flag.FlagSet) string {
+	if n := u.repeated; n != "" {
+		v := u.given[n]
+		if f := fs.Lookup(n); f != nil && isBoolFlag(f) {
+			return fmt.Sprintf("--%s is given %s; give each flag once", n, timesWord(len(v)))
+		}
+		quoted := make([]string, len(v))
+		for i, x := range v {
+			quoted[i] = strconv.Quote(x)
+		}
+		hint := ""
+		if f := fs.Lookup(n); f != nil && strings.Contains(f.Usage, "comma separated") {
+			hint = fmt.Sprintf(" (several items go in one value, comma separated: --%s %s)", n, strings.Join(v, ","))
+		}
+		return fmt.Sprintf("--%s is given %s (%s); give each flag once%s", n, timesWord(len(v)), strings.Join(quoted, ", then "), hint)
+	}
+	names := slices.Sorted(maps.Keys(u.given))
+	for _, n := range names {
+		if what, ok := pathFlags[n]; ok && strings.TrimSpace(u.given[n][0]) == "" {
+			return fmt.Sprintf("--%s is given an empty value (%q), but it names %s: give one, or leave the flag out", n, u.given[n][0], what)
+		}
+	}
+	return ""
+}
+
+// workersFlag defines --workers, how many things run at once (what, such
+// as "fits"): 1 or more when given, 0 (all cores) when not.
+func workersFlag(fs *flag.FlagSet, what string) *int {
+	n := new(int)
+	fs.Var((*workersValue)(n), "workers", "`N` "+what+" run at once (default: all cores); results do not depend on it")
+	return n
+}
+
+// workersValue is --workers: a number of 1 or more.
+type workersValue int
+
+func (w *workersValue) String() string { return strconv.Itoa(int(*w)) }
+
+func (w *workersValue) Set(s string) error {
+	n, err := strconv.Atoi(strings.TrimSpace(s))
+	if err != nil || n < 1 {
+		return errors.New("want a whole number of 1 or more (leave --workers out to use all cores)")
+	}
+	*w = workersValue(n)
+	return nil
+}
+
+// timesWord is "twice", or "N times" above 2.
+func timesWord(n int) string {
+	if n == 2 {
+		return "twice"
+	}
+	return strconv.Itoa(n) + " times"
+}
+
+// countedValue is a flag's value that records what it is given: a second
+// value is recorded, not set (the flags are refused: flagUses.problem).
+type countedValue struct {
+	flag.Value
+	name string
+	uses *flagUses
+}
+
+func (c *countedValue) Set(s string) error {
+	u := c.uses
+	u.given[c.name] = append(u.given[c.name], s)
+	if len(u.given[c.name]) > 1 {
+		if u.repeated == "" {
+			u.repeated = c.name
+		}
+		return nil
+	}
+	return c.Value.Set(s)
+}
+
+// IsBoolFlag keeps a bool flag one without a value.
+func (c *countedValue) IsBoolFlag() bool {
+	b, ok := c.Value.(interface{ IsBoolFlag() bool })
+	return ok && b.IsBoolFlag()
 }
 
 // fitFlags are the flags of `ordplan fit`.

@@ -94,7 +94,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	fs := newFlags("run", stderr)
 	out := fs.String("out", "", "output directory (default: out/<plan name>)")
 	previous := fs.String("previous", "", "output directory of an earlier run: say what changed in the decisions")
-	workers := fs.Int("workers", 0, "fits run at once (default: all cores); results do not depend on it")
+	workers := workersFlag(fs, "fits")
 	quiet := fs.Bool("quiet", false, "no progress lines")
 	qf := addQueueFlags(fs, "run the fits on ordplan worker processes through the JetStream server at this NATS URL", true)
 	allow := fs.Bool("allow-unregistered-changes", false, "run although the plan departs from its frozen form without a stated reason (the report says so in its first lines)")

@@ -26,7 +26,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 	reps := fs.Int("replicates", 500, "data sets simulated at each size")
 	alpha := fs.Float64("alpha", 0.05, "level of the Wald tests of the plan's hypotheses")
 	out := fs.String("out", "", "output directory (default: out/<plan name>-power)")
-	workers := fs.Int("workers", 0, "replicates run at once (default: all cores); results do not depend on it")
+	workers := workersFlag(fs, "replicates")
 	quiet := fs.Bool("quiet", false, "no progress lines")
 	qf := addQueueFlags(fs, "run each replicate's fits on ordplan worker processes through the JetStream server at this NATS URL", true)
 	allow := fs.Bool("allow-unregistered-changes", false, "simulate although the plan departs from its frozen form without a stated reason (the power report says so in its first lines, UNREGISTERED CHANGES, and run.json records it)")

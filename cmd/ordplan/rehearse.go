@@ -36,7 +36,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	fs := newFlags("rehearse", stderr)
 	n := fs.Int("n", 0, "rows to simulate (default: assumptions.n)")
 	out := fs.String("out", "", "output directory (default: out/<plan name>-rehearsal)")
-	workers := fs.Int("workers", 0, "fits run at once (default: all cores); results do not depend on it")
+	workers := workersFlag(fs, "fits")
 	quiet := fs.Bool("quiet", false, "no progress lines")
 	allow := fs.Bool("allow-unregistered-changes", false, "rehearse although the plan departs from its frozen form without a stated reason (the report says so in its first lines)")
 	planPath, stop, code := planArg(fs, args, rehearseUsage, stderr)
