@@ -103,5 +103,28 @@ func mistakeItems(dir string) []badInput {
 			},
 			want:  []string{`ordplan: --previous: R11-prev/decisions.json is not the decisions record of an ordplan run (it does not say "program": "ordplan"); --previous names the output folder of an earlier ordplan run (its --out, which holds its decisions.json)`},
 			check: noFolder("R11-out")},
+		{id: "R12", name: "a lock file that is a link to a missing file, under check", args: []string{"check"}, plan: goodPlan, code: 1, setup: danglingLock,
+			want: []string{"ordplan: R12.lock.json is a symbolic link to missing-lock.json, which does not exist: the plan's registration cannot be read (was the lock moved or deleted?); restore the file it points to, or remove the link if the plan was never frozen"}},
+		{id: "R12", name: "a lock file that is a link to a missing file, under run", args: []string{"run"}, plan: goodPlan, code: 1, setup: danglingLock,
+			want:  []string{"ordplan: R12.lock.json is a symbolic link to missing-lock.json, which does not exist"},
+			check: noFolder("R12-out")},
+		{id: "R12", name: "a lock file that is a link to a missing file, under freeze", args: []string{"freeze"}, plan: goodPlan, code: 1, setup: danglingLock,
+			want: []string{"ordplan freeze: R12.lock.json is a symbolic link to missing-lock.json, which does not exist: the plan's registration cannot be read", ". To freeze anew all the same (the link is kept as R12.lock.json.replaced-TIME), pass --replace"},
+			check: func(t *testing.T, dir, out, errs string) {
+				if target, err := os.Readlink(filepath.Join(dir, "R12.lock.json")); err != nil || target != "missing-lock.json" {
+					t.Errorf("the link is now %q (%v)", target, err)
+				}
+			}},
+	}
+}
+
+// danglingLock makes the item's lock file a symbolic link to a file that
+// does not exist.
+func danglingLock(t *testing.T, dir, id string) {
+	t.Helper()
+	p := filepath.Join(dir, id+".lock.json")
+	os.Remove(p)
+	if err := os.Symlink("missing-lock.json", p); err != nil {
+		t.Fatal(err)
 	}
 }

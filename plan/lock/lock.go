@@ -10,6 +10,7 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"time"
 
@@ -81,9 +82,15 @@ func (f *File) Encode() []byte {
 type ExistsError struct {
 	Path string
 	Old  *File // nil when the old lock cannot be read
+	// Missing is set when the lock file is a symbolic link to a file
+	// that does not exist (DanglingLink).
+	Missing error
 }
 
 func (e *ExistsError) Error() string {
+	if e.Missing != nil {
+		return fmt.Sprintf("%v. To freeze anew all the same (the link is kept as %s.replaced-TIME), pass --replace", e.Missing, filepath.Base(e.Path))
+	}
 	what := "a lock file"
 	if e.Old != nil {
 		what = fmt.Sprintf("the lock written at %s (canonical sha256 %.12s...)", e.Old.FrozenAt, e.Old.SHA256)
@@ -103,7 +110,7 @@ func Write(f *File, planPath string, replace bool) (path, kept string, err error
 	if _, err := os.Lstat(path); err == nil {
 		old, _ := Read(path)
 		if !replace {
-			return path, "", &ExistsError{Path: path, Old: old}
+			return path, "", &ExistsError{Path: path, Old: old, Missing: DanglingLink(path)}
 		}
 		stamp := time.Now().UTC().Format("20060102T150405Z")
 		if old != nil {
@@ -111,9 +118,14 @@ func Write(f *File, planPath string, replace bool) (path, kept string, err error
 				stamp = t.UTC().Format("20060102T150405Z")
 			}
 		}
+		// A name not taken: -2, -3, ... after the time when locks were
+		// replaced within one second.
 		kept = path + ".replaced-" + stamp
-		if _, err := os.Lstat(kept); err == nil {
-			return path, "", fmt.Errorf("%s: cannot keep the old lock: %s already exists", path, kept)
+		for i := 2; ; i++ {
+			if _, err := os.Lstat(kept); err != nil {
+				break
+			}
+			kept = path + ".replaced-" + stamp + "-" + strconv.Itoa(i)
 		}
 		if err := os.Rename(path, kept); err != nil {
 			return path, "", fmt.Errorf("%s: cannot keep the old lock: %w", path, err)
@@ -129,6 +141,21 @@ func Write(f *File, planPath string, replace bool) (path, kept string, err error
 		return path, kept, err
 	}
 	return path, kept, nil
+}
+
+// DanglingLink says that the lock file at path is a symbolic link to a
+// file that does not exist (nil when it is not): a registration lost, not
+// a plan never frozen.
+func DanglingLink(path string) error {
+	fi, err := os.Lstat(path)
+	if err != nil || fi.Mode()&os.ModeSymlink == 0 {
+		return nil
+	}
+	if _, err := os.Stat(path); !errors.Is(err, fs.ErrNotExist) {
+		return nil
+	}
+	target, _ := os.Readlink(path)
+	return fmt.Errorf("%s is a symbolic link to %s, which does not exist: the plan's registration cannot be read (was the lock moved or deleted?); restore the file it points to, or remove the link if the plan was never frozen", path, target)
 }
 
 // Read reads and verifies a lock file: its layout, its own checksum, and

@@ -243,6 +243,53 @@ func TestLockNotOverwrittenSilently(t *testing.T) {
 	}
 }
 
+// Locks replaced again and again within one second (their frozen_at the
+// same) are each kept, under the time and -2, -3: the third replacement
+// once failed with "cannot keep the old lock: ... already exists".
+func TestLockReplacedWithinOneSecond(t *testing.T) {
+	p, path := setup(t, basePlan)
+	var kept []string
+	for i := range 3 {
+		_, k, err := Write(New(p, "R"+string(rune('a'+i)), frozenAt, "test"), path, true)
+		if err != nil {
+			t.Fatalf("replacement %d: %v", i+1, err)
+		}
+		kept = append(kept, filepath.Base(k))
+	}
+	want := []string{"p.lock.json.replaced-20261201T093000Z", "p.lock.json.replaced-20261201T093000Z-2", "p.lock.json.replaced-20261201T093000Z-3"}
+	if !slices.Equal(kept, want) {
+		t.Errorf("kept as %v, want %v", kept, want)
+	}
+	for i, k := range kept {
+		f, err := Read(filepath.Join(filepath.Dir(path), k))
+		if reg := []string{"REG-7", "Ra", "Rb"}[i]; err != nil || f.Registration != reg {
+			t.Errorf("%s: %v, want the lock of %s", k, err, reg)
+		}
+	}
+}
+
+// A lock file that is a symbolic link to a file that does not exist is a
+// registration lost, said as such, not a plan never frozen.
+func TestDanglingLockLink(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "p.yaml")
+	p, err := plan.Parse([]byte(basePlan), path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.Symlink("gone.json", PathFor(path)); err != nil {
+		t.Fatal(err)
+	}
+	want := "p.lock.json is a symbolic link to gone.json, which does not exist: the plan's registration cannot be read"
+	if _, err := Check(p, false); err == nil || !strings.Contains(err.Error(), want) {
+		t.Errorf("check: %v", err)
+	}
+	_, _, err = Write(New(p, "", frozenAt, "test"), path, false)
+	var ee *ExistsError
+	if !errors.As(err, &ee) || !strings.Contains(err.Error(), want) {
+		t.Errorf("freeze: %v", err)
+	}
+}
+
 func TestHandEditedLock(t *testing.T) {
 	for _, tc := range []struct{ name, old, new, want string }{
 		{"a rule in the canonical form", `"alpha": 0.05`, `"alpha": 0.01`, "lock_checksum does not match"},

@@ -138,6 +138,9 @@ func Check(p *plan.Plan, allow bool) (*Status, error) { return CheckVersion(p, a
 // error names when it is not the lock's.
 func CheckVersion(p *plan.Plan, allow bool, version string) (*Status, error) {
 	path := PathFor(p.Path)
+	if err := DanglingLink(path); err != nil {
+		return nil, err
+	}
 	if _, err := os.Stat(path); errors.Is(err, fs.ErrNotExist) {
 		return &Status{State: StateNone, LockFile: filepath.Base(path), Unused: p.Deviations}, nil
 	}
