@@ -2,6 +2,7 @@ package plan
 
 import (
 	"math"
+	"strconv"
 
 	"gopkg.in/yaml.v3"
 )
@@ -158,7 +159,13 @@ func (d *decoder) list(n *yaml.Node, path string) ([]*yaml.Node, bool) {
 	n = deref(n)
 	if n == nil || n.Kind != yaml.SequenceNode {
 		hint := ""
-		if n != nil && n.Kind == yaml.ScalarNode {
+		switch {
+		case n != nil && n.Kind == yaml.ScalarNode && n.Value == "" && n.ShortTag() == "!!str":
+			// [] is a list of none, the opposite of the one empty text.
+			hint = `; write [""] for a list of one item, the empty text ([] is a list of none)`
+		case n != nil && n.Kind == yaml.ScalarNode && n.Style&(yaml.DoubleQuotedStyle|yaml.SingleQuotedStyle) != 0:
+			hint = "; write [" + strconv.Quote(clip(n.Value)) + "] for a list of one"
+		case n != nil && n.Kind == yaml.ScalarNode:
 			hint = "; write [" + clip(n.Value) + "] for a list of one"
 		}
 		d.errorf(n, path, "want a list, got %s%s", describe(n), hint)

@@ -115,6 +115,9 @@ func mistakeItems(dir string) []badInput {
 					t.Errorf("the link is now %q (%v)", target, err)
 				}
 			}},
+		{id: "V7", name: "missing_values given as the empty text, not a list", args: []string{"check", "--no-data"}, code: 1,
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  missing_values: \"\"\n"),
+			want: []string{`V7.yaml:4:19: data.missing_values: want a list, got string ""; write [""] for a list of one item, the empty text ([] is a list of none)`}},
 	}
 }
 
