@@ -1,6 +1,7 @@
 package plan
 
 import (
+	"errors"
 	"fmt"
 	"strconv"
 	"strings"
@@ -128,6 +129,13 @@ func describe(n *yaml.Node) string {
 		case "!!null":
 			return "null"
 		case "!!str":
+			if n.Style&(yaml.DoubleQuotedStyle|yaml.SingleQuotedStyle) == 0 {
+				// A number beyond the largest the YAML reader holds
+				// (1e400) reads as text.
+				if _, err := strconv.ParseFloat(strings.ReplaceAll(n.Value, "_", ""), 64); errors.Is(err, strconv.ErrRange) {
+					return "number " + clip(n.Value) + ", too large for any number (beyond about 1.8e308)"
+				}
+			}
 			return "string " + quote(n.Value)
 		case "!!int", "!!float":
 			return "number " + clip(n.Value)

@@ -13,6 +13,7 @@ import (
 	"regexp"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"gopkg.in/yaml.v3"
 
@@ -142,13 +143,16 @@ func readYAML(src []byte, path string) (root *yaml.Node, e *Error) {
 			root, e = nil, &Error{File: path, Msg: fmt.Sprintf("not valid YAML (parser failed: %v)", r)}
 		}
 	}()
+	if e := notUTF8(src, path); e != nil {
+		return nil, e
+	}
 	dec := yaml.NewDecoder(bytes.NewReader(src))
 	var doc yaml.Node
 	if err := dec.Decode(&doc); err != nil {
 		if errors.Is(err, io.EOF) {
 			return nil, &Error{File: path, Msg: "plan file is empty"}
 		}
-		return nil, syntaxError(path, err)
+		return nil, tabError(syntaxError(path, err), src)
 	}
 	var next yaml.Node
 	switch err := dec.Decode(&next); {
@@ -162,7 +166,93 @@ func readYAML(src []byte, path string) (root *yaml.Node, e *Error) {
 	if len(doc.Content) == 0 || isNull(doc.Content[0]) {
 		return nil, &Error{File: path, Msg: "plan file is empty"}
 	}
+	if e := mergeKey(doc.Content[0], "", path); e != nil {
+		return nil, e
+	}
 	return doc.Content[0], nil
+}
+
+// notUTF8 refuses a plan that is not UTF-8 text (a file saved as
+// Windows-1252 or Latin-1), naming the line, the column and the first byte
+// that is not UTF-8; nil when it is UTF-8 (or UTF-16 with its byte order
+// mark, which the YAML reader decodes).
+func notUTF8(src []byte, path string) *Error {
+	if bytes.HasPrefix(src, []byte{0xff, 0xfe}) || bytes.HasPrefix(src, []byte{0xfe, 0xff}) || utf8.Valid(src) {
+		return nil
+	}
+	line, col := 1, 1
+	for i := 0; i < len(src); {
+		r, size := utf8.DecodeRune(src[i:])
+		if r == utf8.RuneError && size <= 1 {
+			return &Error{File: path, Line: line, Col: col,
+				Msg: fmt.Sprintf("the plan file is not UTF-8 text (byte 0x%02x on line %d is not valid UTF-8; perhaps Latin-1 or Windows-1252): save the plan as UTF-8", src[i], line)}
+		}
+		if r == '\n' {
+			line, col = line+1, 0
+		}
+		i += size
+		col++
+	}
+	return nil
+}
+
+// tabError names the tab of a line the YAML reader could not read for
+// it: YAML indents with spaces only, and its message ("found character
+// that cannot start any token") does not say which character.
+func tabError(e *Error, src []byte) *Error {
+	if e.Line < 1 || !strings.Contains(e.Msg, "cannot start any token") && !strings.Contains(e.Msg, "tab character") {
+		return e
+	}
+	lines := bytes.Split(src, []byte("\n"))
+	if e.Line > len(lines) {
+		return e
+	}
+	l := lines[e.Line-1]
+	i := bytes.IndexByte(l, '\t')
+	if i < 0 {
+		return e
+	}
+	e.Col = utf8.RuneCount(l[:i]) + 1
+	e.Msg = fmt.Sprintf("not valid YAML: a tab at column %d of line %d; YAML indents with spaces, never tabs: replace the tab with spaces", e.Col, e.Line)
+	return e
+}
+
+// mergeKey refuses the first YAML merge key (<<: *anchor) under n (path
+// its key), in one message: a plan writes its keys out, and a merged
+// mapping would be read as an unknown key "<<" beside keys said missing.
+func mergeKey(n *yaml.Node, path, file string) *Error {
+	switch n.Kind {
+	case yaml.MappingNode:
+		for i := 0; i+1 < len(n.Content); i += 2 {
+			k, v := n.Content[i], n.Content[i+1]
+			key := k.Value
+			if path != "" {
+				key = path + "." + k.Value
+			}
+			if k.Kind == yaml.ScalarNode && k.ShortTag() == "!!merge" {
+				from := ""
+				if v.Kind == yaml.AliasNode && v.Alias != nil {
+					from = fmt.Sprintf(" of the anchor &%s (line %d)", v.Value, v.Alias.Line)
+				}
+				where := "here"
+				if path != "" {
+					where = "under " + path
+				}
+				return &Error{File: file, Line: k.Line, Col: k.Column, Key: key,
+					Msg: fmt.Sprintf("YAML merge keys (<<) are not supported in a plan: write the keys%s out %s", from, where)}
+			}
+			if e := mergeKey(v, key, file); e != nil {
+				return e
+			}
+		}
+	case yaml.SequenceNode:
+		for i, it := range n.Content {
+			if e := mergeKey(it, fmt.Sprintf("%s[%d]", path, i), file); e != nil {
+				return e
+			}
+		}
+	}
+	return nil
 }
 
 // parserErrors begin the messages of the YAML library's parser (the

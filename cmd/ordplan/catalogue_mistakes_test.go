@@ -5,8 +5,10 @@ package main
 // TestBadInputCatalogue with the others.
 
 import (
+	"fmt"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 )
 
@@ -118,6 +120,46 @@ func mistakeItems(dir string) []badInput {
 		{id: "V7", name: "missing_values given as the empty text, not a list", args: []string{"check", "--no-data"}, code: 1,
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  missing_values: \"\"\n"),
 			want: []string{`V7.yaml:4:19: data.missing_values: want a list, got string ""; write [""] for a list of one item, the empty text ([] is a list of none)`}},
+		{id: "P63", name: "a YAML merge key", args: []string{"check", "--no-data"}, code: 1,
+			plan: "x: &d {file: d.csv}\n" + edit("data:\n  file: d.csv\n", "data:\n  <<: *d\n"),
+			want: []string{"P63.yaml:4:3: data.<<: YAML merge keys (<<) are not supported in a plan: write the keys of the anchor &d (line 1) out under data"},
+			known: func(out, errs string, code int) string {
+				if strings.Contains(errs, "required key is missing") {
+					return "a merge key was called an unknown key, and the keys it merged missing"
+				}
+				return ""
+			}},
+		{id: "P64", name: "a tab that indents a line", args: []string{"check", "--no-data"}, code: 1,
+			plan: edit("data:\n  file: d.csv\n", "data:\n\tfile: d.csv\n"),
+			want: []string{"P64.yaml:3:1: not valid YAML: a tab at column 1 of line 3; YAML indents with spaces, never tabs: replace the tab with spaces"}},
+		{id: "P65", name: "a plan saved as Windows-1252", args: []string{"check", "--no-data"}, code: 1,
+			plan: edit("version: 1\n", "version: 1\ntitle: caf\xe9\n"),
+			want: []string{"P65.yaml:2:11: the plan file is not UTF-8 text (byte 0xe9 on line 2 is not valid UTF-8; perhaps Latin-1 or Windows-1252): save the plan as UTF-8"}},
+		{id: "P4", name: "a number too large for any number", args: []string{"check", "--no-data"}, code: 1,
+			plan: edit("version: 1\n", "version: 1\nseed: 1e400\n"),
+			want: []string{`P4.yaml:2:7: seed: want a whole number from 0 to 18446744073709551615, got number 1e400, too large for any number (beyond about 1.8e308)`}},
+		{id: "P66", name: "ordplan init into a folder that does not exist", args: []string{"init", filepath.Join(dir, "P66-nodir", "x.yaml"), "--data", filepath.Join(dir, "d.csv")}, code: 1,
+			want:  []string{"ordplan: init: cannot write P66-nodir/x.yaml: the folder P66-nodir does not exist: make it first, or give another path"},
+			check: noFolder("P66-nodir")},
+		{id: "P66", name: "ordplan init of a file too wide for a plan", args: []string{"init", filepath.Join(dir, "P66-wide.yaml"), "--data", filepath.Join(dir, "P66-wide.csv")}, code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				var b strings.Builder
+				b.WriteString("y")
+				for j := range 30000 {
+					fmt.Fprintf(&b, ",c%d", j)
+				}
+				for i := range 3 {
+					fmt.Fprintf(&b, "\n%d", i+1)
+					for j := range 30000 {
+						fmt.Fprintf(&b, ",%d", (i+j)%7)
+					}
+				}
+				if err := os.WriteFile(filepath.Join(dir, id+"-wide.csv"), []byte(b.String()+"\n"), 0o644); err != nil {
+					t.Fatal(err)
+				}
+			},
+			want:  []string{"ordplan: init: the plan of the 30001 columns would have", "bytes, more than the 4194304 a plan may have (ordplan check would refuse it); nothing written: give --header with the columns the analysis uses, or init from a file holding only those"},
+			check: noFolder("P66-wide.yaml")},
 	}
 }
 

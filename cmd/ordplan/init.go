@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"ordplan/internal/newfile"
+	"ordplan/plan"
 	"ordplan/plan/skeleton"
 	"ordplan/runner/data"
 )
@@ -38,6 +39,11 @@ func cmdInit(args []string, stdout, stderr io.Writer) int {
 		fmt.Fprintln(stderr, "ordplan init: give either --data FILE or --header \"a,b,c\"")
 		fmt.Fprintln(stderr, initUsage)
 		return exitUsage
+	}
+	// Where the plan goes is checked before the data are read (a wide
+	// file takes a while).
+	if code := initTarget(planPath, stderr); code != exitOK {
+		return code
 	}
 	in := skeleton.Input{Outcome: *outcome}
 	if *dataFile != "" {
@@ -80,12 +86,12 @@ func cmdInit(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
+	if len(text) > plan.MaxPlanBytes {
+		// The commands that read a plan would refuse it (plan.ReadFile).
+		return fail(stderr, fmt.Errorf("init: the plan of the %d columns would have %d bytes, more than the %d a plan may have (ordplan check would refuse it); nothing written: give --header with the columns the analysis uses, or init from a file holding only those", len(in.Columns), len(text), plan.MaxPlanBytes))
+	}
 	if err := newfile.Create(planPath, text); err != nil {
-		var ee *newfile.ExistsError
-		if errors.As(err, &ee) {
-			return fail(stderr, fmt.Errorf("init: %s already exists; ordplan init never overwrites a file: give another name", planPath))
-		}
-		return fail(stderr, err)
+		return initTargetError(planPath, err, stderr)
 	}
 	fmt.Fprintf(stdout, "wrote %s: edit the lines marked EDIT, then `ordplan check %s`\n", planPath, planPath)
 	for _, n := range skeleton.Notes(in) {
@@ -137,4 +143,22 @@ func initDialect(file, delimiter, decimal, sheet string, headerRow int) (data.Di
 	}
 	d.Sheet, d.HeaderRow = sheet, headerRow
 	return d, !book && !data.IsParquet(file) && delimiter == "" && decimal == "", ""
+}
+
+// initTarget checks that init can write its plan at planPath (newfile.Check).
+func initTarget(planPath string, stderr io.Writer) int {
+	if err := newfile.Check(planPath); err != nil {
+		return initTargetError(planPath, err, stderr)
+	}
+	return exitOK
+}
+
+// initTargetError reports that init cannot write planPath: R5 when a file
+// is there.
+func initTargetError(planPath string, err error, stderr io.Writer) int {
+	var ee *newfile.ExistsError
+	if errors.As(err, &ee) {
+		return fail(stderr, fmt.Errorf("init: %s already exists; ordplan init never overwrites a file: give another name", planPath))
+	}
+	return fail(stderr, fmt.Errorf("init: %w", err))
 }
