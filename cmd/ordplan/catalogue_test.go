@@ -1440,6 +1440,22 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("report.md lacks %q", want)
 				}
 			}},
+		{id: "X25", name: "ordplan init on a workbook with a hidden column: its line says so", args: []string{"init", "X25init.yaml", "--data", "hiddencol.xlsx", "--sheet", "survey", "--header-row", "3"}, code: 0,
+			setup: func(t *testing.T, dir, id string) { os.Remove(filepath.Join(dir, "X25init.yaml")); t.Chdir(dir) },
+			check: func(t *testing.T, dir, out, errs string) {
+				b, err := os.ReadFile(filepath.Join(dir, "X25init.yaml"))
+				if err != nil {
+					t.Fatal(err)
+				}
+				for _, line := range strings.Split(string(b), "\n") {
+					if hidden := strings.Contains(line, "(hidden in the sheet, read as data: check that the plan should use it)"); strings.HasPrefix(line, "#   a ") != hidden && (hidden || strings.HasPrefix(line, "#   a ")) {
+						t.Errorf("column line %q", line)
+					}
+				}
+				if !bytes.Contains(b, []byte("#   a ")) {
+					t.Errorf("no line for column a:\n%s", b)
+				}
+			}},
 		{id: "X24", name: "a workbook's sheet named that is empty", args: fitArgs(d("sheets.xlsx"), "--predictors", "a", "--sheet", "blank"), code: 1,
 			want: []string{"ordplan: sheets.xlsx: sheet \"blank\" is empty; the workbook's other sheets: \"notes\", \"data\", \"old\" (hidden) (data.sheet, or --sheet, names the one to read)\n"}},
 		{id: "X17", name: "a spreadsheet error value in a used column", args: fitArgs(d("formula.xlsx"), "--predictors", "b"), code: 1,

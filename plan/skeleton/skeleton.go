@@ -163,6 +163,10 @@ func Write(in Input) ([]byte, error) {
 		case contains(skipped, c.Name):
 			role = "  (not a predictor below: declare it or leave it out)"
 		}
+		if c.Hidden {
+			// Read as data all the same: often an old version of a column.
+			role += "  (hidden in the sheet, read as data: check that the plan should use it)"
+		}
 		w("#   %-*s  %s%s", width, c.Name, kinds[i].Describe, role)
 	}
 	w("")

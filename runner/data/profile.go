@@ -51,6 +51,9 @@ type Profile struct {
 	// as the integer it is read as (2), the text a declared category
 	// matches (declaredCategory), as a code found is named.
 	ZeroFraction string
+	// Hidden: a workbook's column the sheet hides from view (read as data
+	// all the same).
+	Hidden bool
 }
 
 // topLikeCodes are numbers that surveys conventionally write at the top
@@ -111,6 +114,9 @@ func ProfileSheet(path string, missingTokens []string, d Dialect) ([]Profile, *S
 	if sr, ok := r.cr.(*sheetRecords); ok {
 		read := sr.read
 		sheet = &read
+		for i := range p {
+			p[i].Hidden = sr.hiddenCols[sr.lead+i+1]
+		}
 	}
 	return p, sheet, err
 }

@@ -464,6 +464,9 @@ func (s *SheetRead) HiddenNames() []string {
 
 // hiddenColumns finds the columns 1 to width of a worksheet hidden from
 // view (hidden by hand, or by a collapsed outline: <col hidden="1">).
+// GetColVisible reads the worksheet's structure, which excelize parses
+// once and keeps: openSheet asks after GetMergeCells has parsed it, so
+// the columns cost nothing more (asked first, the parse would be theirs).
 func hiddenColumns(f *excelize.File, sheet string, width int) map[int]bool {
 	var out map[int]bool
 	for c := 1; c <= width; c++ {
