@@ -188,8 +188,19 @@ func inTableCell(n ast.Node) bool {
 // nameBreaks inserts <wbr> into rendered HTML text (tags and character
 // references left whole) after "_", "&amp;" and "/" and after a "." between
 // a letter or digit and a letter, each only when more of the word follows,
-// and between a lower-case and an upper-case letter. follow is the byte
-// after h in the cell's text (0 if none).
+// and between a lower-case and an upper-case letter that end a run of at
+// least three lower-case letters (yearsLived, not the prefix of a name
+// such as McFadden). follow is the byte after h in the cell's text (0 if
+// none).
+// lowerRun is the number of lower-case ASCII letters that end s.
+func lowerRun(s string) int {
+	n := 0
+	for n < len(s) && s[len(s)-1-n] >= 'a' && s[len(s)-1-n] <= 'z' {
+		n++
+	}
+	return n
+}
+
 func nameBreaks(h string, follow byte) string {
 	if !strings.ContainsAny(h, "_&./") && h == strings.ToLower(h) {
 		return h
@@ -234,7 +245,7 @@ func nameBreaks(h string, follow byte) string {
 			b.WriteString("<wbr>")
 		case c == '.' && i >= 2 && isWord(h[i-2]) && isLetter(next):
 			b.WriteString("<wbr>")
-		case c >= 'a' && c <= 'z' && next >= 'A' && next <= 'Z':
+		case c >= 'a' && c <= 'z' && next >= 'A' && next <= 'Z' && lowerRun(h[:i]) >= 3:
 			b.WriteString("<wbr>")
 		}
 	}

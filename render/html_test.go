@@ -6,7 +6,8 @@ import (
 )
 
 // TestNameBreaks: long names in table cells may break after "_", ".",
-// "&" and "/" and at camel-case joins, never inside a word, a number or a
+// "&" and "/" and at camel-case joins (not after a name's short prefix,
+// McFadden), never inside a word, a number or a
 // character reference, and text outside tables is left as goldmark writes
 // it. The expected HTML is written out by hand.
 func TestNameBreaks(t *testing.T) {
@@ -17,6 +18,7 @@ func TestNameBreaks(t *testing.T) {
 	d.b.WriteString("| " + mdCode("pilot&street_type") + " | -1.5e-07 |\n")
 	d.b.WriteString("| cumulative/constrained/logit | 12.5% |\n")
 	d.b.WriteString("| yearsLived &amp; x | 3 |\n")
+	d.b.WriteString("| McFadden, McKelvey-Zavoina | 4 |\n")
 	got, err := d.html("t")
 	if err != nil {
 		t.Fatal(err)
@@ -30,6 +32,7 @@ func TestNameBreaks(t *testing.T) {
 		"<td style=\"text-align:right\">-1.5e-07</td>",
 		"<td>cumulative/<wbr>constrained/<wbr>logit</td>",
 		"<td>years<wbr>Lived &amp; x</td>",
+		"<td>McFadden, McKelvey-Zavoina</td>", // a name's prefix is no camel-case join
 	} {
 		if !strings.Contains(h, want) {
 			t.Errorf("report.html lacks %q", want)
