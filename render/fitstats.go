@@ -188,10 +188,10 @@ func writeGoodnessOfFit(d *doc, or *runner.OutcomeResult) {
 	for _, l := range t.Categories {
 		head = append(head, l+" obs", l+" exp")
 	}
-	obsText := observedText(or)
+	obsText := countText(t.Observed, t.Weight)
 	var rows [][]string
 	for g := 0; g < t.Groups; g++ {
-		row := []string{fmt.Sprint(g + 1), numfmt.Fixed(t.Low[g], 3) + "–" + numfmt.Fixed(t.High[g], 3), numfmt.Num(t.Weight[g])}
+		row := []string{fmt.Sprint(g + 1), numfmt.Fixed(t.Low[g], 3) + "–" + numfmt.Fixed(t.High[g], 3), obsText(t.Weight[g])}
 		for j := range t.Categories {
 			row = append(row, obsText(t.Observed[g][j]), numfmt.Fixed(t.Expected[g][j], 1))
 		}
@@ -202,14 +202,20 @@ func writeGoodnessOfFit(d *doc, or *runner.OutcomeResult) {
 	writePatternSplit(d, or)
 }
 
-// observedText formats an observed count of a goodness-of-fit table: as
-// it is for one data set, with one decimal on imputed data, where it is the
-// mean of the sets' counts (so that 51 and 54.2 do not sit side by side).
-func observedText(or *runner.OutcomeResult) func(float64) string {
-	if or.GOFPooling != nil {
-		return func(v float64) string { return numfmt.Fixed(v, 1) }
+// countText formats the observed counts (and group sizes) of a
+// goodness-of-fit table: whole numbers as they are; otherwise (sums of
+// sampling weights, or on imputed data the mean of the sets' counts) every
+// one with one decimal, as the expected counts beside them, so that 59.6968
+// and 59.7 do not sit side by side.
+func countText(counts [][]float64, sizes []float64) func(float64) string {
+	whole := !slices.ContainsFunc(sizes, func(v float64) bool { return v != math.Trunc(v) })
+	for _, row := range counts {
+		whole = whole && !slices.ContainsFunc(row, func(v float64) bool { return v != math.Trunc(v) })
 	}
-	return numfmt.Num
+	if whole {
+		return numfmt.Num
+	}
+	return func(v float64) string { return numfmt.Fixed(v, 1) }
 }
 
 // writePatternSplit writes the Pulkstenis-Robinson tests of the chosen
@@ -257,10 +263,10 @@ func writePatternSplit(d *doc, or *runner.OutcomeResult) {
 	for _, l := range t.Categories {
 		head = append(head, l+" obs", l+" exp")
 	}
-	obsText := observedText(or)
+	obsText := countText(t.Observed, t.Weight)
 	var rows [][]string
 	for g := 0; g < t.Groups; g++ {
-		row := []string{t.Pattern[g], t.Half[g], numfmt.Num(t.Weight[g])}
+		row := []string{t.Pattern[g], t.Half[g], obsText(t.Weight[g])}
 		for j := range t.Categories {
 			row = append(row, obsText(t.Observed[g][j]), numfmt.Fixed(t.Expected[g][j], 1))
 		}

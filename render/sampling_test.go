@@ -6,6 +6,7 @@ import (
 	"os"
 	"path/filepath"
 	"slices"
+	"regexp"
 	"strings"
 	"testing"
 
@@ -142,6 +143,36 @@ rules:
 		"Pearson: not computed, the weights are sampling weights", "Deviance: not computed, the weights are sampling weights")
 	if strings.Contains(md, "statistic 0.000") {
 		t.Error("report.md prints a Pulkstenis-Robinson statistic of 0.000 under sampling weights")
+	}
+	// The observed counts are sums of weights: written with one decimal,
+	// as the expected counts beside them and the groups' sizes.
+	for _, caption := range []string{"Observed and expected counts by group of predicted score", "Observed and expected counts by covariate pattern and half of predicted score"} {
+		i := strings.Index(md, caption)
+		if i < 0 {
+			t.Fatalf("report.md has no table %q", caption)
+		}
+		lines := strings.Split(md[i:], "\n")
+		for _, l := range lines[4:7] {
+			cells := strings.Split(strings.Trim(l, "| "), " | ")
+			for _, c := range cells[2:] {
+				if !regexp.MustCompile(`^-?[0-9]+\.[0-9]$`).MatchString(c) {
+					t.Errorf("%s: cell %q of %q is not a count with one decimal", caption, c, l)
+				}
+			}
+		}
+	}
+}
+
+// TestCountText: whole counts are written as they are; when any count of
+// the table is not whole (sums of sampling weights, means over imputed
+// sets) every count has one decimal.
+func TestCountText(t *testing.T) {
+	if f := countText([][]float64{{3, 12}, {0, 7}}, []float64{15, 7}); f(12) != "12" {
+		t.Errorf("whole counts: %q", f(12))
+	}
+	f := countText([][]float64{{59.6968, 12}}, []float64{71.6968})
+	if f(59.6968) != "59.7" || f(12) != "12.0" {
+		t.Errorf("counts of weights: %q %q", f(59.6968), f(12))
 	}
 }
 
