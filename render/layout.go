@@ -309,6 +309,25 @@ func (f fitting) VisitXAxis(axes []opts.XAxis) any {
 	return out
 }
 
+// paddedAxis is a value y axis whose extent comes from the data (scale):
+// the library widens it by a share at each end before rounding it to its
+// ticks, so that no point sits on the frame.
+type paddedAxis struct {
+	opts.YAxis
+	BoundaryGap [2]string `json:"boundaryGap"`
+}
+
+func (f fitting) VisitYAxis(axes []opts.YAxis) any {
+	out := make([]any, len(axes))
+	for i, a := range axes {
+		out[i] = a
+		if a.Scale != nil && bool(*a.Scale) {
+			out[i] = paddedAxis{YAxis: a, BoundaryGap: [2]string{"5%", "5%"}}
+		}
+	}
+	return out
+}
+
 type legendText struct {
 	FontSize int    `json:"fontSize"`
 	Width    int    `json:"width"`

@@ -324,11 +324,9 @@ func (f *figure) plot() (*plot.Plot, *plot.Legend, error) {
 			entries = append(entries, entry{s.name, thumbs})
 		}
 	}
-	if finite(f.yMin) {
-		p.Y.Min = f.yMin
-	}
-	if finite(f.yMax) {
-		p.Y.Max = f.yMax
+	padAxis(&p.Y, f.yMin, f.yMax, true)
+	if f.xNames == nil {
+		padAxis(&p.X, math.NaN(), math.NaN(), false)
 	}
 	if f.legendUp {
 		slices.Reverse(entries)
@@ -346,6 +344,56 @@ type diamondGlyph struct{}
 func (diamondGlyph) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
 	r := sty.Radius
 	c.FillPolygon(sty.Color, []vg.Point{{X: pt.X, Y: pt.Y + r}, {X: pt.X + r, Y: pt.Y}, {X: pt.X, Y: pt.Y - r}, {X: pt.X - r, Y: pt.Y}})
+}
+
+// padAxis sets an axis's ends: lo and hi where given (not NaN); a free end
+// is moved out by 5% of the data's range (2% without toTicks), so that no
+// point sits on the frame, and with toTicks then out to the next labelled
+// tick, so that no value lies beyond the last tick (a value axis; an x
+// axis over a predictor's range keeps to that range).
+func padAxis(a *plot.Axis, lo, hi float64, toTicks bool) {
+	span := a.Max - a.Min
+	if span <= 0 || !finite(span) {
+		span = math.Max(math.Abs(a.Max), 1)
+	}
+	share := 0.05
+	if !toTicks {
+		share = 0.02
+	}
+	if !finite(lo) {
+		a.Min -= share * span
+	}
+	if !finite(hi) {
+		a.Max += share * span
+	}
+	for i := 0; toTicks && i < 3; i++ { // the ticks change with the range: a few rounds settle it
+		var major []float64
+		for _, t := range a.Tick.Marker.Ticks(a.Min, a.Max) {
+			if !t.IsMinor() {
+				major = append(major, t.Value)
+			}
+		}
+		if len(major) < 2 {
+			break
+		}
+		step := major[1] - major[0]
+		moved := false
+		if !finite(lo) && major[0] > a.Min+1e-9*step {
+			a.Min, moved = major[0]-step, true
+		}
+		if !finite(hi) && major[len(major)-1] < a.Max-1e-9*step {
+			a.Max, moved = major[len(major)-1]+step, true
+		}
+		if !moved {
+			break
+		}
+	}
+	if finite(lo) {
+		a.Min = lo
+	}
+	if finite(hi) {
+		a.Max = hi
+	}
 }
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }

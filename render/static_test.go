@@ -4,6 +4,7 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"strings"
 	"testing"
 
@@ -106,7 +107,8 @@ rules:
 	}
 	c := criteriaChart(&doc{}, or, false)
 	hasAll(t, "caption", c.caption, "the chosen model is the large diamond.", "Hollow circles are models a decision rule rejected")
-	hasAll(t, "chart option", c.option, `"symbol":"diamond"`, `"symbol":"emptyCircle"`, `"name":"chosen model"`, `"name":"rejected by a rule"`)
+	hasAll(t, "chart option", c.option, `"symbol":"diamond"`, `"symbol":"emptyCircle"`, `"name":"chosen model"`, `"name":"rejected by a rule"`,
+		`"boundaryGap":["5%","5%"]`) // the y axis widened past the data before its ticks are rounded
 	svg, err := c.static.svg()
 	if err != nil {
 		t.Fatal(err)
@@ -134,5 +136,45 @@ rules:
 	}
 	if rings != 2*rejected+1 {
 		t.Errorf("figure has %d rings, want %d (%d models rejected)", rings, 2*rejected+1, rejected)
+	}
+}
+
+// TestFigureRangesPadded: a free end of a static figure's value axis lies
+// beyond the data by a margin (no point on the frame) and at a labelled
+// tick (no value beyond the last tick); a numeric x axis keeps a small
+// margin; an end the figure fixes (probabilities from 0) stays where it
+// is.
+func TestFigureRangesPadded(t *testing.T) {
+	f := newFigure("criteria", "", "criterion")
+	f.xNames = []string{"a", "b", "c", "d"}
+	ys := []float64{5030.2, 5299.7, 5120, 5064}
+	f.series = []figSeries{{name: "AIC", color: "#336699", ys: ys, points: true, noLine: true, legend: true}}
+	p, _, err := f.plot()
+	if err != nil {
+		t.Fatal(err)
+	}
+	lo, hi := slices.Min(ys), slices.Max(ys)
+	margin := 0.04 * (hi - lo)
+	if p.Y.Min > lo-margin || p.Y.Max < hi+margin {
+		t.Errorf("y axis %g to %g, data %g to %g: no margin", p.Y.Min, p.Y.Max, lo, hi)
+	}
+	var major []float64
+	for _, tk := range p.Y.Tick.Marker.Ticks(p.Y.Min, p.Y.Max) {
+		if !tk.IsMinor() {
+			major = append(major, tk.Value)
+		}
+	}
+	if len(major) < 2 || major[0] > lo || major[len(major)-1] < hi {
+		t.Errorf("labelled ticks %v do not reach the data %g to %g", major, lo, hi)
+	}
+	g := newFigure("probabilities", "age", "probability")
+	g.yMin = 0
+	g.series = []figSeries{{name: "p", color: "#336699", xs: []float64{18, 50, 80}, ys: []float64{0.2, 0.4, 0.3}, legend: true}}
+	p, _, err = g.plot()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if p.Y.Min != 0 || p.Y.Max < 0.4 || p.X.Min >= 18 || p.X.Max <= 80 || p.X.Min < 16 || p.X.Max > 82 {
+		t.Errorf("probability figure: x %g to %g, y %g to %g", p.X.Min, p.X.Max, p.Y.Min, p.Y.Max)
 	}
 }
