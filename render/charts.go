@@ -42,7 +42,7 @@ type echartsChart interface {
 // by val, so the same inputs give the same text. "<" is escaped so that
 // no label can end the inline script the option is written into.
 func newChart(fr *chartFrame, caption string, c echartsChart) *chart {
-	c.Accept(fitting{width: fr.legendWidth(), step: fr.xStep})
+	c.Accept(fitting{width: fr.legendWidth()})
 	c.Validate()
 	js := strings.TrimSpace(string(c.JSONNotEscaped()))
 	js = strings.ReplaceAll(js, "<", `\u003c`)
@@ -61,7 +61,6 @@ type chartFrame struct {
 	grid                opts.Grid
 	legend              []string // the legend's entries, at the bottom unless legendRight
 	legendRight         bool     // the legend stands right of the plot, one entry per line
-	xStep               int      // above 1: a label and tick at every xStep-th category only
 }
 
 // legendWidth is the most a legend entry may take before an ellipsis
@@ -147,6 +146,22 @@ func xyData(xs, ys []float64) []opts.LineData {
 	}
 	return out
 }
+
+// stackData turns x, y pairs into points [y, x] of a stacked line on a
+// value x axis, read through stackEncode: the library stacks the first
+// numeric dimension of a point, point by point (by index) when no axis is
+// of categories, so y must come first.
+func stackData(xs, ys []float64) []opts.LineData {
+	out := make([]opts.LineData, len(xs))
+	for i := range xs {
+		out[i] = opts.LineData{Value: []any{val(ys[i]), val(xs[i])}}
+	}
+	return out
+}
+
+// stackEncode reads the points of stackData: x from the second dimension,
+// y from the first.
+var stackEncode = charts.WithEncodeOpts(opts.Encode{X: 1, Y: 0})
 
 // lineStyle is a series style: colour, width, dashed or not, symbols or not.
 func lineStyle(color string, width float32, dashed, symbols bool) []charts.SeriesOpts {

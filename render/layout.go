@@ -278,35 +278,11 @@ func (l categoryLabels) axisLabel(size int) *opts.AxisLabel {
 
 // fitting is the chart visitor that adds what go-echarts has no field
 // for: a legend whose entries longer than width pixels are shortened with
-// an ellipsis and shown whole in a tooltip.
+// an ellipsis and shown whole in a tooltip, and a margin beyond the data
+// on y axes whose extent comes from the data (paddedAxis).
 type fitting struct {
 	charts.BaseConfigurationVisitor
 	width int
-	step  int
-}
-
-// steppedAxis is an x axis labelled at every step-th category: the
-// library wants the interval as a number, which go-echarts writes as a
-// string.
-type steppedAxis struct {
-	opts.XAxis
-	AxisLabel interval `json:"axisLabel"`
-	AxisTick  interval `json:"axisTick"`
-}
-
-type interval struct {
-	Interval int `json:"interval"`
-}
-
-func (f fitting) VisitXAxis(axes []opts.XAxis) any {
-	if f.step <= 1 {
-		return axes
-	}
-	out := make([]steppedAxis, len(axes))
-	for i, a := range axes {
-		out[i] = steppedAxis{XAxis: a, AxisLabel: interval{f.step - 1}, AxisTick: interval{f.step - 1}}
-	}
-	return out
 }
 
 // paddedAxis is a value y axis whose extent comes from the data (scale):

@@ -6,7 +6,6 @@ import (
 	"testing"
 
 	"github.com/go-echarts/go-echarts/v2/charts"
-	"github.com/go-echarts/go-echarts/v2/opts"
 	"gonum.org/v1/plot/vg"
 )
 
@@ -73,7 +72,8 @@ func TestCategoryLabelsLayout(t *testing.T) {
 // TestLongNamesChartOptions: a chart with a long title and a legend of
 // long names wraps the title, makes the chart taller by the extra lines
 // and legend rows, cuts legend entries with an ellipsis and shows them
-// whole in a tooltip, and gives the library a numeric label interval.
+// whole in a tooltip, and gives the focus a value axis (the library puts
+// its ticks at round values).
 func TestLongNamesChartOptions(t *testing.T) {
 	cats := []string{"completely disagree with the proposal as described", "mostly disagree", "slightly disagree (but open to discussion)", "slightly agree", "mostly agree", "completely agree with every part of the proposal"}
 	fr := &chartFrame{id: "chart-1", title: "Predicted probabilities by respondent_age_in_completed_years_at_interview", subtitle: "short", height: 420, grid: predictionGrid, legend: cats}
@@ -95,7 +95,8 @@ func TestLongNamesChartOptions(t *testing.T) {
 				Tooltip struct{ Show bool } `json:"tooltip"`
 			} `json:"legend"`
 			XAxis []struct {
-				AxisLabel struct{ Interval any } `json:"axisLabel"`
+				Type  string `json:"type"`
+				Scale bool   `json:"scale"`
 			} `json:"xAxis"`
 		}
 		if err := json.Unmarshal([]byte(c.option), &opt); err != nil {
@@ -104,8 +105,8 @@ func TestLongNamesChartOptions(t *testing.T) {
 		if opt.Legend.TextStyle.Width != legendTextMax || opt.Legend.TextStyle.Overflow != "truncate" || !opt.Legend.Tooltip.Show {
 			t.Errorf("%s: legend %+v", f.id, opt.Legend)
 		}
-		if _, ok := opt.XAxis[0].AxisLabel.Interval.(float64); !ok {
-			t.Errorf("%s: label interval %#v is not a number", f.id, opt.XAxis[0].AxisLabel.Interval)
+		if opt.XAxis[0].Type != "value" || !opt.XAxis[0].Scale {
+			t.Errorf("%s: x axis %+v, want a value axis from the data's range (ticks at round values)", f.id, opt.XAxis[0])
 		}
 		if f == fr && (!strings.Contains(opt.Title.Text, "\n") || c.height <= 420) {
 			t.Errorf("long title %q not wrapped or chart not taller (%d)", opt.Title.Text, c.height)
@@ -140,12 +141,9 @@ func TestStaticFigureLongNames(t *testing.T) {
 // legend entry, its axis laid out as the prediction charts lay theirs.
 func newLineChart(f *chartFrame, xs []float64) *charts.Line {
 	l := charts.NewLine()
-	var axis opts.XAxis
-	axis, f.xStep = gridAxis("age", gridLabels(xs), chartTextWidth-80)
-	l.SetGlobalOptions(append(f.opts(), charts.WithXAxisOpts(axis))...)
-	l.SetXAxis(gridLabels(xs))
+	l.SetGlobalOptions(append(f.opts(), charts.WithXAxisOpts(focusAxis("age")))...)
 	for _, n := range f.legend {
-		l.AddSeries(n, lineData(xs))
+		l.AddSeries(n, xyData(xs, xs))
 	}
 	return l
 }

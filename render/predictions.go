@@ -217,12 +217,9 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 		return newChart(fr, caption, b).with(fig), nil
 	}
 	l := charts.NewLine()
-	var axis opts.XAxis
-	axis, fr.xStep = gridAxis(pf.focus, gridLabels(xs), chartTextWidth-80)
 	l.SetGlobalOptions(append(fr.opts(),
-		charts.WithXAxisOpts(axis),
+		charts.WithXAxisOpts(focusAxis(pf.focus)),
 		charts.WithYAxisOpts(opts.YAxis{Name: "probability", Type: "value", Min: 0}))...)
-	l.SetXAxis(gridLabels(xs))
 	for j, lv := range res.Categories {
 		col := categoryColor(j, J)
 		p := probs(j)
@@ -239,11 +236,11 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 		// name, so its legend entry shows and hides line and band together.
 		stack := fmt.Sprintf("band-%d", j+1)
 		hidden := charts.WithLineStyleOpts(opts.LineStyle{Opacity: opts.Float(0)})
-		l.AddSeries(lv, lineData(lo), charts.WithLineChartOpts(opts.LineChart{Stack: stack, ShowSymbol: opts.Bool(false)}), hidden,
-			charts.WithItemStyleOpts(opts.ItemStyle{Color: col}))
-		l.AddSeries(lv, lineData(width), charts.WithLineChartOpts(opts.LineChart{Stack: stack, ShowSymbol: opts.Bool(false)}), hidden,
-			charts.WithAreaStyleOpts(opts.AreaStyle{Color: col, Opacity: opts.Float(0.18)}), charts.WithItemStyleOpts(opts.ItemStyle{Color: col}))
-		l.AddSeries(lv, lineData(p), lineStyle(col, 2, false, false)...)
+		l.AddSeries(lv, stackData(xs, lo), charts.WithLineChartOpts(opts.LineChart{Stack: stack, ShowSymbol: opts.Bool(false)}), hidden,
+			charts.WithItemStyleOpts(opts.ItemStyle{Color: col}), stackEncode)
+		l.AddSeries(lv, stackData(xs, width), charts.WithLineChartOpts(opts.LineChart{Stack: stack, ShowSymbol: opts.Bool(false)}), hidden,
+			charts.WithAreaStyleOpts(opts.AreaStyle{Color: col, Opacity: opts.Float(0.18)}), charts.WithItemStyleOpts(opts.ItemStyle{Color: col}), stackEncode)
+		l.AddSeries(lv, xyData(xs, p), lineStyle(col, 2, false, false)...)
 		hi := make([]float64, len(xs))
 		for i := range xs {
 			hi[i] = lo[i] + width[i]
@@ -292,14 +289,11 @@ func cumulativeChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 	right := 40 + int(math.Ceil(widest))
 	grid.Right = strconv.Itoa(right)
 	fr := d.frame(chartFrame{title: title, subtitle: sub, height: 420, grid: grid, legend: legend, legendRight: true})
-	axis, step := gridAxis(pf.focus, gridLabels(xs), float64(chartTextWidth-40-right))
-	fr.xStep = step
 	l.SetGlobalOptions(append(fr.opts(),
-		charts.WithXAxisOpts(axis),
+		charts.WithXAxisOpts(focusAxis(pf.focus)),
 		charts.WithYAxisOpts(opts.YAxis{Name: "cumulative probability", Type: "value", Min: 0, Max: 1, NameLocation: "middle", NameGap: 32}),
 		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Orient: "vertical", Right: "0", Top: "middle",
 			Data: legend}))...)
-	l.SetXAxis(gridLabels(xs))
 	fig := newFigure(title, pf.focus, "cumulative probability")
 	fig.yMin, fig.yMax = 0, 1
 	fig.legendUp = true
@@ -312,7 +306,7 @@ func cumulativeChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 			p[i] = pred.Prob[i*pred.J+j]
 			top[i] = bottom[i] + p[i]
 		}
-		l.AddSeries(lv, lineData(p), charts.WithLineChartOpts(opts.LineChart{Stack: "cumulative", ShowSymbol: opts.Bool(false)}),
+		l.AddSeries(lv, stackData(xs, p), stackEncode, charts.WithLineChartOpts(opts.LineChart{Stack: "cumulative", ShowSymbol: opts.Bool(false)}),
 			charts.WithLineStyleOpts(opts.LineStyle{Color: col, Width: 1}),
 			charts.WithAreaStyleOpts(opts.AreaStyle{Color: col, Opacity: opts.Float(0.85)}), charts.WithItemStyleOpts(opts.ItemStyle{Color: col}))
 		fig.series = append(fig.series, figSeries{name: lv, color: col, xs: xs, lo: append([]float64(nil), bottom...), hi: top, alpha: 0.85, legend: true})
@@ -321,37 +315,16 @@ func cumulativeChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 	return newChart(fr, caption, l).with(fig), nil
 }
 
-// gridAxis is the x axis of the charts over the focus grid: a category
-// axis (so that the library stacks the bands point by point) labelled at
-// evenly spaced points, first and last included, as many as keep apart
-// on an axis plotWidth pixels wide: every step-th (see chartFrame.xStep).
-func gridAxis(name string, labels []string, plotWidth float64) (axis opts.XAxis, step int) {
-	widest := 0.0
-	for _, l := range labels {
-		widest = max(widest, textWidth(l, 12))
-	}
-	n := len(labels) - 1
-	step = max(n, 1)
-	for k := 1; k < n; k++ {
-		if n%k == 0 && plotWidth/float64(n)*float64(k) >= widest+10 {
-			step = k
-			break
-		}
-	}
-	return opts.XAxis{Name: axisName(name), Type: "category", NameLocation: "middle", NameGap: 28}, step
+// focusAxis is the x axis of the charts over the focus grid: a value
+// axis, whose ticks the library puts at round values and whose ends it
+// rounds outwards to them (scale: not from 0). The library stacks the
+// bands' series point by point on it, as their points share the grid.
+func focusAxis(name string) opts.XAxis {
+	return opts.XAxis{Name: axisName(name), Type: "value", Scale: opts.Bool(true), NameLocation: "middle", NameGap: 28}
 }
 
 // axisName is the name of an x axis, shortened with an ellipsis to the
 // chart's width (the caption gives it whole).
 func axisName(name string) string {
 	return fitWidth(name, chartTextWidth-40, widthAt(12))
-}
-
-// gridLabels writes the focus values with three significant digits.
-func gridLabels(xs []float64) []string {
-	out := make([]string, len(xs))
-	for i, x := range xs {
-		out[i] = strconv.FormatFloat(x, 'g', 3, 64)
-	}
-	return out
 }

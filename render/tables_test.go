@@ -213,6 +213,9 @@ func TestPredictedCSVEveryPanel(t *testing.T) {
 		}
 	}
 	hasAll(t, "report.md", md, "one panel per level of street_type (report.panels_by; column street_type: the level it is held at) (other predictors at their means) with")
+	// The charts over age: a value axis (ticks at round values), the
+	// stacked series' points [y, x] read through their encode.
+	hasAll(t, "report.html", string(files["report.html"]), `"encode":{"x":1,"y":0}`, `"type":"value","name":"age"`)
 	// Without panels the categorical predictor is at its reference level,
 	// which the description and the charts' captions say.
 	plain := string(renderSource(t, t.TempDir(), goldenWith(t, ""), 1)["report.md"])
