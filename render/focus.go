@@ -1,6 +1,7 @@
 package render
 
 import (
+	"ordplan/plan"
 	"ordplan/runner"
 	"ordplan/runner/fit"
 )
@@ -24,7 +25,8 @@ func focusName(r *runner.Result) string {
 type profile struct {
 	*runner.Profile
 	focus  string
-	binary bool // draw bars: a 0/1 or categorical focus
+	binary bool   // draw bars: a 0/1 or categorical focus
+	axis   string // the x axis's title: the focus and its unit (axisTitle)
 }
 
 // newProfile describes the data of the outcome around predictor focus,
@@ -34,7 +36,16 @@ func newProfile(or *runner.OutcomeResult, focus string, fixed map[string]string)
 	if err != nil {
 		return nil, err
 	}
-	return &profile{Profile: p, focus: p.Focus, binary: p.Binary || p.Categorical}, nil
+	return &profile{Profile: p, focus: p.Focus, binary: p.Binary || p.Categorical, axis: p.Focus}, nil
+}
+
+// axisTitle is the title of an axis over column col: its name, and its
+// unit in brackets when the plan's dictionary gives one (age (years)).
+func axisTitle(p *plan.Plan, col string) string {
+	if e := p.EntryOf(col); e != nil && e.Unit != "" {
+		return col + " (" + e.Unit + ")"
+	}
+	return col
 }
 
 // grid returns the focus values.

@@ -73,6 +73,7 @@ func writePredictionPanel(d *doc, r *runner.Result, or *runner.OutcomeResult, fi
 		d.p("Not computed: %s.", err)
 		return
 	}
+	pf.axis = axisTitle(r.Plan, pf.focus)
 	xs := pf.grid(tablePoints)
 	pred, err := pf.predict(res, xs)
 	if err != nil {
@@ -186,13 +187,13 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 		}
 		return out
 	}
-	fig := newFigure(title, pf.focus, "probability")
+	fig := newFigure(title, pf.axis, "probability")
 	fig.yMin = 0
 	fr := d.frame(chartFrame{title: title, subtitle: sub, height: 420, grid: predictionGrid, legend: res.Categories})
 	if pf.binary {
 		b := charts.NewBar()
 		b.SetGlobalOptions(append(fr.opts(),
-			charts.WithXAxisOpts(opts.XAxis{Name: axisName(pf.focus), Type: "category"}),
+			charts.WithXAxisOpts(opts.XAxis{Name: axisName(pf.axis), Type: "category"}),
 			charts.WithYAxisOpts(opts.YAxis{Name: "probability", Type: "value", Max: 1}))...)
 		var labels []string
 		for _, x := range xs {
@@ -218,7 +219,7 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 	}
 	l := charts.NewLine()
 	l.SetGlobalOptions(append(fr.opts(),
-		charts.WithXAxisOpts(focusAxis(pf.focus)),
+		charts.WithXAxisOpts(focusAxis(pf.axis)),
 		charts.WithYAxisOpts(opts.YAxis{Name: "probability", Type: "value", Min: 0}))...)
 	for j, lv := range res.Categories {
 		col := categoryColor(j, J)
@@ -290,11 +291,11 @@ func cumulativeChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 	grid.Right = strconv.Itoa(right)
 	fr := d.frame(chartFrame{title: title, subtitle: sub, height: 420, grid: grid, legend: legend, legendRight: true})
 	l.SetGlobalOptions(append(fr.opts(),
-		charts.WithXAxisOpts(focusAxis(pf.focus)),
+		charts.WithXAxisOpts(focusAxis(pf.axis)),
 		charts.WithYAxisOpts(opts.YAxis{Name: "cumulative probability", Type: "value", Min: 0, Max: 1, NameLocation: "middle", NameGap: 32}),
 		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Orient: "vertical", Right: "0", Top: "middle",
 			Data: legend}))...)
-	fig := newFigure(title, pf.focus, "cumulative probability")
+	fig := newFigure(title, pf.axis, "cumulative probability")
 	fig.yMin, fig.yMax = 0, 1
 	fig.legendUp = true
 	bottom := make([]float64, len(xs))

@@ -176,7 +176,7 @@ func goldenWith(t *testing.T, report string) string {
 // other predictors are held (categorical ones at their reference level,
 // not at a mean).
 func TestPredictedCSVEveryPanel(t *testing.T) {
-	files := renderSource(t, t.TempDir(), goldenWith(t, "  panels_by: street_type\n"), 1)
+	files := renderSource(t, t.TempDir(), goldenWith(t, "  panels_by: street_type\n")+"dictionary:\n  age: {range: [16, 100], unit: years}\n  pilot: {values: [0, 1]}\n  female: {values: [0, 1]}\n  cyclist: {values: [0, 1]}\n  street_type: {label: street}\n", 1)
 	recs, err := csv.NewReader(bytes.NewReader(files["table-predicted-safety.csv"])).ReadAll()
 	if err != nil {
 		t.Fatal(err)
@@ -215,7 +215,18 @@ func TestPredictedCSVEveryPanel(t *testing.T) {
 	hasAll(t, "report.md", md, "one panel per level of street_type (report.panels_by; column street_type: the level it is held at) (other predictors at their means) with")
 	// The charts over age: a value axis (ticks at round values), the
 	// stacked series' points [y, x] read through their encode.
-	hasAll(t, "report.html", string(files["report.html"]), `"encode":{"x":1,"y":0}`, `"type":"value","name":"age"`)
+	// The axis's title gives the dictionary's unit.
+	hasAll(t, "report.html", string(files["report.html"]), `"encode":{"x":1,"y":0}`, `"type":"value","name":"age (years)"`)
+	svgs := 0
+	for name, b := range files {
+		if strings.HasSuffix(name, ".svg") && bytes.Contains(b, []byte("Predicted probabilities by age")) {
+			svgs++
+			hasAll(t, name, string(b), ">age (years)<")
+		}
+	}
+	if svgs != 3 {
+		t.Errorf("%d figures of predicted probabilities, want 3", svgs)
+	}
 	// Without panels the categorical predictor is at its reference level,
 	// which the description and the charts' captions say.
 	plain := string(renderSource(t, t.TempDir(), goldenWith(t, ""), 1)["report.md"])
