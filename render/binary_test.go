@@ -59,10 +59,24 @@ rules:
 	if strings.Contains(methods, "The parallel-lines assumption was tested") || !strings.Contains(methods, "no parallel-lines test was computed") {
 		t.Errorf("methods:\n%s", methods)
 	}
-	// Logit and cloglog links: the cumulative comparisons are not called
-	// logits, and the proportional odds model is the logit link's.
-	if strings.Contains(methods, "cumulative logits") || !strings.Contains(methods, "cumulative probabilities through each link (under the logit link with parallel effects, the proportional odds model)") {
-		t.Errorf("methods name the cumulative comparisons wrongly for logit and cloglog links:\n%s", methods)
+	// The grid is one binary regression under each link, fitted once per
+	// comparison and effect structure: the methods say so instead of
+	// naming ordinal comparisons and effects across boundaries, and name
+	// no source of an ordinal model; without interactions, no sentence on
+	// them; the odds ratios have one boundary, no "other boundaries".
+	hasAll(t, "methods", methods,
+		"was analysed with binary regression models (with two ordered categories the plan's ordinal models reduce to them)",
+		"were binary regressions of yes against no with each of the logit and cloglog links: with two categories the outcome has a single category boundary, so the plan's cumulative, stage and adjacent comparisons with parallel and nonparallel effects are all that one model, fitted 6 times under each link, and the candidates differ only in their link.")
+	for _, bad := range []string{"ordinal regression models", "cumulative logits", "cumulative probabilities", "continuation-ratio", "adjacent-category", "McCullagh", "Fienberg", "Agresti", "interaction"} {
+		if strings.Contains(methods, bad) {
+			t.Errorf("methods hold %q:\n%s", bad, methods)
+		}
+	}
+	// Logit and cloglog links (outcomes of three or more categories): the
+	// cumulative comparisons are not called logits, and the proportional
+	// odds model is the logit link's.
+	if w := cumulativeWords([]fit.Link{fit.Logit, fit.Cloglog}); w != "cumulative probabilities through each link (under the logit link with parallel effects, the proportional odds model)" {
+		t.Errorf("logit and cloglog: %q", w)
 	}
 	if w := cumulativeWords([]fit.Link{fit.Probit}); w != "cumulative probabilities through the link" {
 		t.Errorf("probit alone: %q", w)
@@ -97,12 +111,16 @@ rules:
 	md := string(renderSource(t, dir, src, 1)["report.md"])
 	methods := md[strings.Index(md, "## Methods"):strings.Index(md, "## Reproducibility")]
 	hasAll(t, "methods", methods,
-		"partial effects (with one category boundary, the same model as parallel effects) [",
+		"were binary regressions of yes against no with the logit link: with two categories the outcome has a single category boundary, so the plan's grid holds that one model.",
 		"had nothing to test: with one category boundary each predictor has a single slope, so no parallel constraint could be tested or imposed.")
-	for _, bad := range []string{"free to differ across category boundaries", "it left", "constrained"} {
+	for _, bad := range []string{"free to differ across category boundaries", "it left", "constrained", "Peterson"} {
 		if strings.Contains(methods, bad) {
 			t.Errorf("methods hold %q:\n%s", bad, methods)
 		}
+	}
+	// The odds ratios of the chosen logit model have one boundary.
+	if strings.Contains(md, "likewise at the other boundaries") || !strings.Contains(md, "the factor by which it multiplies the odds of yes against no (with two categories, one boundary, the cumulative odds ratio is this plain odds ratio); above 1 the outcome moves towards yes.") {
+		t.Errorf("odds ratios of one boundary:\n%s", md)
 	}
 }
 

@@ -99,8 +99,14 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	if pooled {
 		interval = "exp(b ∓ t·se), t the quantile of t on the degrees of freedom in column df (those of b in the estimates above; for a constrained predictor the smallest among b_m's parameters)"
 	}
-	d.p("exp(b) for a one-unit increase of each model column (what that unit is, in the column Change), with %s intervals %s: the %s. At the first boundary (%s/%s) it multiplies the %s, and likewise at the other boundaries; above 1 the outcome moves towards higher categories. A parallel predictor has one value for every boundary; a constrained predictor has exp(φ_m g) at boundary m, its interval from the delta method on b_m = φ_m g.",
-		pct(level), interval, kind, lo, hi, fit.OddsRatioMeaning(res.Model, lo, hi))
+	if len(res.Categories) == 2 {
+		// One boundary: no other boundaries, nothing parallel or constrained.
+		d.p("exp(b) for a one-unit increase of each model column (what that unit is, in the column Change), with %s intervals %s: the factor by which it multiplies the odds of %s against %s (with two categories, one boundary, the %s is this plain odds ratio); above 1 the outcome moves towards %s.",
+			pct(level), interval, hi, lo, kind, hi)
+	} else {
+		d.p("exp(b) for a one-unit increase of each model column (what that unit is, in the column Change), with %s intervals %s: the %s. At the first boundary (%s/%s) it multiplies the %s, and likewise at the other boundaries; above 1 the outcome moves towards higher categories. A parallel predictor has one value for every boundary; a constrained predictor has exp(φ_m g) at boundary m, its interval from the delta method on b_m = φ_m g.",
+			pct(level), interval, kind, lo, hi, fit.OddsRatioMeaning(res.Model, lo, hi))
+	}
 	where := slices.ContainsFunc(tab.Rows, func(o runner.OddsRatioRow) bool { return o.HoldsAt != "" })
 	if res.RefDF > 0 && res.DF == nil {
 		d.p("With cluster-robust errors from G = %d clusters, z is the quantile of t on G-1 = %s degrees of freedom, as for the estimates.", res.Clusters, numfmt.Num(res.RefDF))

@@ -96,8 +96,12 @@ func writeMethods(d *doc, r *runner.Result) {
 		if sampling {
 			fitted = fmt.Sprintf("fitted by maximum pseudo-likelihood with the sampling weights of %s, rescaled to sum to the rows used (so that no number depends on their arbitrary scale)", mdCode(p.Data.Weights))
 		}
-		s = append(s, fmt.Sprintf("The outcome %s (%d ordered categories, from %s to %s) was analysed with ordinal regression models %s (ordplan %s).",
-			mdText(or.Outcome.Label), len(ds.Categories), mdText(ds.Categories[0]), mdText(ds.Categories[len(ds.Categories)-1]), fitted, r.Version))
+		kind := "ordinal regression models"
+		if binary(or) {
+			kind = "binary regression models (with two ordered categories the plan's ordinal models reduce to them)"
+		}
+		s = append(s, fmt.Sprintf("The outcome %s (%d ordered categories, from %s to %s) was analysed with %s %s (ordplan %s).",
+			mdText(or.Outcome.Label), len(ds.Categories), mdText(ds.Categories[0]), mdText(ds.Categories[len(ds.Categories)-1]), kind, fitted, r.Version))
 		if !sampling && p.Data.Weights != "" && ds.Weights != nil {
 			s = append(s, fmt.Sprintf("The rows carry frequency weights (%s, whole numbers): each row counts as that many identical observations, %s in the %d rows used.", mdCode(p.Data.Weights), strconv.FormatFloat(ds.NObs(), 'g', -1, 64), ds.N))
 		}
@@ -124,46 +128,17 @@ func writeMethods(d *doc, r *runner.Result) {
 			d.p("%s", pm)
 		}
 		s = nil
-		var comps []string
-		for _, a := range p.Models.Approaches {
-			switch a {
-			case fit.Cumulative:
-				comps = append(comps, cumulativeWords(p.Models.Links)+" "+c.cite("mccullagh"))
-			case fit.Stage:
-				comps = append(comps, "continuation-ratio (sequential) comparisons "+c.cite("fienberg", "mare"))
-			case fit.Adjacent:
-				comps = append(comps, "adjacent-category comparisons "+c.cite("agresti"))
-			}
-		}
-		var effects []string
-		for _, e := range p.Models.Effects {
-			switch e {
-			case fit.ParallelEffects:
-				effects = append(effects, "parallel effects")
-			case fit.PartialEffects:
-				if binary(or) {
-					effects = append(effects, "partial effects (with one category boundary, the same model as parallel effects) "+c.cite("peterson"))
-					break
-				}
-				effects = append(effects, "partial effects free to differ across category boundaries"+partialSetWords(r, or, false)+" "+c.cite("peterson"))
-			case fit.ConstrainedEffects:
-				if binary(or) {
-					effects = append(effects, "constrained partial effects (with one category boundary, the same model as parallel effects) "+c.cite("peterson", "hauser"))
-					break
-				}
-				effects = append(effects, "partial effects constrained to a common factor across boundaries"+partialSetWords(r, or, true)+" "+c.cite("peterson", "hauser"))
-			case fit.NonparallelEffects:
-				effects = append(effects, "fully nonparallel effects")
-			case fit.StereotypeEffects:
-				effects = append(effects, "the one-dimensional stereotype model "+c.cite("anderson"))
-			}
-		}
 		fixed := "fixed in an analysis plan before fitting"
 		if st := r.Registration; st != nil && (st.State == lock.StateNone || st.Lock == nil) {
 			fixed = "set out in an analysis plan"
 		}
-		s = append(s, fmt.Sprintf("The candidate models, %s (plan SHA-256 %s%s), crossed %s with %s, using the %s link%s.",
-			fixed, short(p.Hash), registeredAs(r), words.AndList(comps), words.AndList(effects), words.AndList(wordList(p.Models.Links)), plural(len(p.Models.Links))))
+		if binary(or) {
+			s = append(s, binaryGridMethods(or, p, fixed, registeredAs(r)))
+		} else {
+			comps, effects := gridWords(r, or, c)
+			s = append(s, fmt.Sprintf("The candidate models, %s (plan SHA-256 %s%s), crossed %s with %s, using the %s link%s.",
+				fixed, short(p.Hash), registeredAs(r), words.AndList(comps), words.AndList(effects), words.AndList(wordList(p.Models.Links)), plural(len(p.Models.Links))))
+		}
 		if sel := p.Models.Partial.Select; sel != nil && binary(or) {
 			s = append(s, fmt.Sprintf("The plan's backward stepwise selection of the predictors allowed non-parallel effects %s had nothing to test: with one category boundary each predictor has a single slope, so no parallel constraint could be tested or imposed.", c.cite("williams")))
 		} else if sel != nil {
@@ -704,7 +679,9 @@ func termTestsMethods(or *runner.OutcomeResult, inf plan.Inference, sampling boo
 	default:
 		s = append(s, "Each term of the chosen model was tested by a Wald test that all its slopes are 0 and by a likelihood-ratio test against the chosen model refitted without the term on the same rows.")
 	}
-	s = append(s, "A term that takes part in an interaction was tested together with every interaction containing it, and each interaction on its own.")
+	if slices.ContainsFunc(or.TermTests, func(tt runner.TermTest) bool { return len(tt.With) > 0 }) {
+		s = append(s, "A term that takes part in an interaction was tested together with every interaction containing it, and each interaction on its own.")
+	}
 	for _, tt := range or.TermTests {
 		if tt.Bound != "" {
 			s = append(s, "Columns that make up a whole constraint group, whose common factor has no meaning without them, were tested with their tests referred to the chi-square distribution of the same columns made nonparallel, a model the constrained one is nested in, which gives conservative p-values.")
@@ -723,6 +700,73 @@ func termTestsMethods(or *runner.OutcomeResult, inf plan.Inference, sampling boo
 	}
 	s = append(s, "These tests assume the chosen model holds and refer their statistics to large-sample distributions: the Wald and likelihood-ratio statistics can differ in small samples, in large samples they reject for effects too small to matter, and a term associated with the outcome given the others is not thereby a cause of it; their p-values were not corrected for the number of terms tested.")
 	return strings.Join(s, " ")
+}
+
+// gridWords names the plan's comparisons and effect structures of an
+// outcome of three or more categories, each with its sources.
+func gridWords(r *runner.Result, or *runner.OutcomeResult, c *citer) (comps, effects []string) {
+	p := r.Plan
+	for _, a := range p.Models.Approaches {
+		switch a {
+		case fit.Cumulative:
+			comps = append(comps, cumulativeWords(p.Models.Links)+" "+c.cite("mccullagh"))
+		case fit.Stage:
+			comps = append(comps, "continuation-ratio (sequential) comparisons "+c.cite("fienberg", "mare"))
+		case fit.Adjacent:
+			comps = append(comps, "adjacent-category comparisons "+c.cite("agresti"))
+		}
+	}
+	for _, e := range p.Models.Effects {
+		switch e {
+		case fit.ParallelEffects:
+			effects = append(effects, "parallel effects")
+		case fit.PartialEffects:
+			effects = append(effects, "partial effects free to differ across category boundaries"+partialSetWords(r, or, false)+" "+c.cite("peterson"))
+		case fit.ConstrainedEffects:
+			effects = append(effects, "partial effects constrained to a common factor across boundaries"+partialSetWords(r, or, true)+" "+c.cite("peterson", "hauser"))
+		case fit.NonparallelEffects:
+			effects = append(effects, "fully nonparallel effects")
+		case fit.StereotypeEffects:
+			effects = append(effects, "the one-dimensional stereotype model "+c.cite("anderson"))
+		}
+	}
+	return comps, effects
+}
+
+// binaryGridMethods describes the grid of a two-category outcome: every
+// approach and effect structure is the same binary regression of the upper
+// category against the lower one under a link, so the grid fits that model
+// once per cell, and the candidates differ only in their link.
+func binaryGridMethods(or *runner.OutcomeResult, p *plan.Plan, fixed, registered string) string {
+	cats := or.AsRead().Categories
+	links := p.Models.Links
+	per := 0
+	for _, f := range or.Fits {
+		if !f.Auxiliary && f.Link == links[0] {
+			per++
+		}
+	}
+	var grid []string
+	for _, a := range p.Models.Approaches {
+		grid = append(grid, a.String())
+	}
+	var eff []string
+	for _, e := range p.Models.Effects {
+		eff = append(eff, e.String())
+	}
+	same := fmt.Sprintf("the plan's %s comparisons with %s effects are all that one model, fitted %d times", words.AndList(grid), words.AndList(eff), per)
+	if per == 1 {
+		same = "the plan's grid holds that one model"
+	}
+	link := fmt.Sprintf("the %s link", links[0])
+	differ := ""
+	if len(links) > 1 {
+		link = fmt.Sprintf("each of the %s links", words.AndList(wordList(links)))
+		same += " under each link"
+		differ = ", and the candidates differ only in their link"
+	}
+	return fmt.Sprintf("The candidate models, %s (plan SHA-256 %s%s), were binary regressions of %s against %s with %s: with two categories the outcome has a single category boundary, so %s%s.",
+		fixed, short(p.Hash), registered, mdText(cats[1]), mdText(cats[0]), link, same, differ)
 }
 
 // cumulativeWords names the cumulative comparisons of the methods draft
