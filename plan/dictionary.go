@@ -24,6 +24,9 @@ type Entry struct {
 	Range   []float64 // [min, max], inclusive; nil = any number
 	Values  []string  // allowed values of a numeric column (as written); nil = any
 	Missing []string  // this column's own missing-value codes (besides data.missing_values)
+	// ByChance says the column's values were assigned to the units by
+	// chance (a randomized treatment): a predictor only.
+	ByChance bool
 }
 
 var (
@@ -31,10 +34,11 @@ var (
 )
 
 // decodeDictionary reads `dictionary: {column: {label, unit, range,
-// values, missing}}`, keeping the plan's order of columns.
+// values, missing, assigned_by_chance}}`, keeping the plan's order of
+// columns.
 func (d *decoder) decodeDictionary(n *yaml.Node) []Entry {
 	var out []Entry
-	d.eachColumn(n, "dictionary", "{label, unit, range, values, missing}", func(k, v *yaml.Node, path string) {
+	d.eachColumn(n, "dictionary", "{label, unit, range, values, missing, assigned_by_chance}", func(k, v *yaml.Node, path string) {
 		e := Entry{Column: k.Value, Key: path}
 		m := d.mapping(v, path, entryKeys)
 		if m == nil {
@@ -42,6 +46,7 @@ func (d *decoder) decodeDictionary(n *yaml.Node) []Entry {
 		}
 		m.text("label", &e.Label)
 		m.text("unit", &e.Unit)
+		m.boolean("assigned_by_chance", &e.ByChance)
 		if v := m.get("range"); v != nil {
 			e.Range = d.valueRange(v, m.at("range"))
 		}
@@ -160,6 +165,9 @@ func (d *decoder) checkDictionary(p *Plan) {
 		if u.Role == RoleCluster && (e.Range != nil || e.Values != nil) {
 			d.errAt(e.Key, "the cluster column holds ids, not numbers: give no range or values")
 		}
+		if e.ByChance && u.Role != RolePredictor {
+			d.errAt(e.Key+".assigned_by_chance", "%s is the %s column (%s), not a predictor: only a predictor's values can have been assigned to the units by chance (a randomized treatment); remove assigned_by_chance here", quote(e.Column), u.Role, u.Key)
+		}
 		for _, c := range e.Missing {
 			if slices.Contains(e.Values, c) {
 				d.errAt(e.Key+".missing", "%s is both an allowed value and a missing-value code", quote(c))
@@ -247,6 +255,18 @@ func findUsed(us []UsedColumn, col string) (UsedColumn, bool) {
 	return UsedColumn{}, false
 }
 
+// ByChanceColumns lists the predictor columns the dictionary says were
+// assigned to the units by chance, in the order of SourceColumns.
+func (p *Plan) ByChanceColumns() []string {
+	var out []string
+	for _, c := range p.SourceColumns() {
+		if e := p.EntryOf(c); e != nil && e.ByChance {
+			out = append(out, c)
+		}
+	}
+	return out
+}
+
 // EntryOf gives the dictionary entry of a column, or nil.
 func (p *Plan) EntryOf(col string) *Entry {
 	for i := range p.Dictionary {
@@ -305,6 +325,11 @@ func (p *Plan) canonicalDictionary() map[string]any {
 		}
 		if e.Values != nil {
 			m["values"] = e.Values
+		}
+		if e.ByChance {
+			// Only when given, so that the plans written before the key
+			// keep their hash.
+			m["assigned_by_chance"] = true
 		}
 		out[e.Column] = m
 	}

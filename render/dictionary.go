@@ -57,7 +57,11 @@ func writeDictionary(d *doc, r *runner.Result) {
 			}
 			values = strings.Join(c.Levels, sep) + " (reference " + c.Reference + ")"
 		}
-		rows = append(rows, []string{md(mdCode(u.Column)), u.Role, kind, values, md(missingCodes(common, own)), label, unit})
+		role := u.Role
+		if e != nil && e.ByChance {
+			role += ", assigned by chance"
+		}
+		rows = append(rows, []string{md(mdCode(u.Column)), role, kind, values, md(missingCodes(common, own)), label, unit})
 	}
 	d.table([]string{"Column", "Role", "Kind", "Values", "Missing-value codes", "Label", "Unit"}, rows)
 	d.p("The whole data file, rows outside the plan's subset too, was checked against this dictionary before any model was fitted: every value of a numeric column is a number, within its range and among its values, and every outcome value is one of its declared categories (an integer code where the plan leaves the categories to the data); missing values are not checked.")

@@ -10,6 +10,7 @@ import (
 	"strconv"
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/data"
@@ -410,6 +411,118 @@ func csvCell(s string) string {
 		if c == ',' || c == '"' || c == '\n' || c == '\r' {
 			return `"` + strings.ReplaceAll(s, `"`, `""`) + `"`
 		}
+	}
+	return s
+}
+
+// hypothesisForm is one of the plan's hypotheses as the chosen model tests
+// it, and the number of restrictions it takes in the other candidates
+// whose test was made, when that differs: then the form of its test (what
+// it restricts, its degrees of freedom, its power) depended on the choice.
+type hypothesisForm struct {
+	Text   string
+	Model  string           // the chosen model
+	DF     int              // restrictions in the chosen model
+	Others map[int][]string // other numbers of restrictions: the candidates that have them
+}
+
+// hypothesisForms lists the plan's hypotheses tested in the chosen model of
+// or, in the plan's order, with the candidates where the test takes another
+// number of restrictions.
+func hypothesisForms(or *runner.OutcomeResult) []hypothesisForm {
+	if or.Chosen == nil {
+		return nil
+	}
+	candidate := map[string]bool{}
+	for _, f := range or.Fits {
+		if !f.Auxiliary {
+			candidate[f.ID] = true
+		}
+	}
+	var out []hypothesisForm
+	for _, h := range or.Hypotheses {
+		if h.Model != or.Chosen.ID || !h.Test.OK {
+			continue
+		}
+		hf := hypothesisForm{Text: h.Text, Model: h.Model, DF: h.Test.DF, Others: map[int][]string{}}
+		for _, o := range or.Hypotheses {
+			if o.Text == h.Text && o.Line == h.Line && o.Model != h.Model && candidate[o.Model] && o.Test.OK && o.Test.DF != h.Test.DF {
+				hf.Others[o.Test.DF] = append(hf.Others[o.Test.DF], o.Model)
+			}
+		}
+		out = append(out, hf)
+	}
+	return out
+}
+
+// othersWords says how many restrictions a hypothesis takes in the other
+// candidates: "1 in cumulative/parallel/logit and 3 in
+// cumulative/nonparallel/logit".
+func (hf hypothesisForm) othersWords() string {
+	var dfs []int
+	for df := range hf.Others {
+		dfs = append(dfs, df)
+	}
+	slices.Sort(dfs)
+	var parts []string
+	for _, df := range dfs {
+		parts = append(parts, fmt.Sprintf("%d in %s", df, words.AndList(hf.Others[df])))
+	}
+	return words.AndList(parts)
+}
+
+// restrictions writes "1 restriction" or "n restrictions".
+func restrictions(n int) string {
+	if n == 1 {
+		return "1 restriction"
+	}
+	return fmt.Sprintf("%d restrictions", n)
+}
+
+// hypothesisChoiceSentence is the caveat of the limits on hypotheses whose
+// test took its form from the model the rules chose; "" when none did.
+func hypothesisChoiceSentence(r *runner.Result) string {
+	var parts []string
+	for _, or := range r.Outcomes {
+		for _, hf := range hypothesisForms(or) {
+			if len(hf.Others) == 0 {
+				continue
+			}
+			where := ""
+			if len(r.Outcomes) > 1 {
+				where = " (outcome " + mdText(or.Outcome.Label) + ")"
+			}
+			parts = append(parts, fmt.Sprintf("%s%s is a test of %s in the chosen model %s, but of %s", mdCode(hf.Text), where, restrictions(hf.DF), hf.Model, hf.othersWords()))
+		}
+	}
+	if len(parts) == 0 {
+		return ""
+	}
+	return "The plan's hypotheses are read in the chosen model, and their tests took their form from it: " + strings.Join(parts, "; ") + ". What such a test restricts, its degrees of freedom and its power therefore depended on the choice the rules made on the same data, and its p-value does not allow for that choice."
+}
+
+// hypothesesMethods is the Methods draft's sentence on the plan's
+// hypotheses of one outcome: tested in every candidate, read in the chosen
+// model, with the number of restrictions there and, when the candidates
+// differ in it, that the test's form depended on the choice.
+func hypothesesMethods(or *runner.OutcomeResult) string {
+	forms := hypothesisForms(or)
+	if len(forms) == 0 {
+		return ""
+	}
+	var parts []string
+	depended := false
+	for _, hf := range forms {
+		w := fmt.Sprintf("%s (%s", mdCode(hf.Text), restrictions(hf.DF))
+		if len(hf.Others) > 0 {
+			depended = true
+			w += "; " + hf.othersWords()
+		}
+		parts = append(parts, w+")")
+	}
+	s := fmt.Sprintf("The plan's hypotheses were tested by Wald tests in every candidate model that has their parameters and are read in the chosen model, %s: %s.", forms[0].Model, words.AndList(parts))
+	if depended {
+		s += " Where the candidates differ in the number of restrictions, the form of the test depended on the model the rules chose."
 	}
 	return s
 }

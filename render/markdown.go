@@ -7,6 +7,7 @@ import (
 
 	"gonum.org/v1/gonum/stat/distuv"
 
+	"ordplan/internal/words"
 	"ordplan/plan"
 	"ordplan/runner"
 	"ordplan/runner/fit"
@@ -264,18 +265,74 @@ func independenceSentence(r *runner.Result) string {
 func writeLimits(d *doc, r *runner.Result) {
 	d.h(2, "Assumptions and limits")
 	items := []string{
-		"The models describe how the outcome is associated with the predictors in these data. They do not show that a predictor causes a change in the outcome; neither do the predicted probabilities or the marginal effects, which are summaries of the same fitted association.",
+		causationSentence(r.Plan),
 		independenceSentence(r),
 		boundariesSentence(r, "Tests of the parallel-lines assumption reject easily in large samples: a small p-value can reflect a difference between boundaries too small to matter in practice. Look at the effects across boundaries before giving up a simpler model."),
 		boundariesSentence(r, "Cumulative partial and nonparallel models can predict negative category probabilities for some covariate values (their cumulative probabilities cross). The number of rows of the data where this happens is shown for every model, and predictions on the grid of the focus predictor are checked too; predictions outside the observed covariate range are more exposed."),
 		startsSentence(r),
 		rowsSentence(r),
 		selectionSentence(r),
+		hypothesisChoiceSentence(r),
 		chosenSentence(r, "Standard errors of predicted probabilities and marginal effects use the delta method: they are first-order approximations."),
 		multiplicitySentence(r),
 		limitIf(len(r.Sensitivity) > 0, sensitivityLimit),
 	}
 	d.list(slices.DeleteFunc(items, func(s string) bool { return s == "" }))
+}
+
+// causationSentence says what the models show of causes: association
+// only, unless the dictionary says a predictor was assigned to the units by
+// chance (assigned_by_chance), whose comparison then has a causal reading
+// under the trial's conditions while the other predictors' do not.
+func causationSentence(p *plan.Plan) string {
+	chance := p.ByChanceColumns()
+	if len(chance) == 0 {
+		return "The models describe how the outcome is associated with the predictors in these data. They do not show that a predictor causes a change in the outcome; neither do the predicted probabilities or the marginal effects, which are summaries of the same fitted association."
+	}
+	var code, others []string
+	for _, c := range chance {
+		code = append(code, mdCode(c))
+	}
+	for _, c := range p.SourceColumns() {
+		if !slices.Contains(chance, c) {
+			others = append(others, mdCode(c))
+		}
+	}
+	verb, whose := "was", "its values"
+	if len(chance) > 1 {
+		verb, whose = "were", "the values of each"
+	}
+	s := fmt.Sprintf("%s %s assigned to the units by chance (the plan's dictionary says so, with assigned_by_chance). The comparison of %s (in the models, and in their predicted probabilities and marginal effects) has a causal reading under the conditions of the trial: if the assignment was made and kept as planned and the outcome was recorded alike in every group (or is missing at random), it estimates what the assignment itself changed in the outcome, for units like those that took part and under the trial's conditions, not beyond them.",
+		words.AndList(code), verb, whose)
+	if len(others) == 0 {
+		return s
+	}
+	s += fmt.Sprintf(" The other predictors (%s) were not assigned by chance: the models describe how the outcome is associated with them in these data, which does not show that they cause a change in it; neither do their predicted probabilities or marginal effects, which are summaries of the same fitted association.", words.AndList(others))
+	if interactsWithChance(p, chance) {
+		s += " Where the effect of an assignment differs with another predictor (an interaction), that describes for whom the assignment changed the outcome more or less, not what the other predictor causes."
+	}
+	return s
+}
+
+// interactsWithChance reports whether an interaction of the plan joins a
+// term read from a column assigned by chance.
+func interactsWithChance(p *plan.Plan, chance []string) bool {
+	source := map[string]string{}
+	terms := slices.Clone(p.Terms)
+	for _, o := range p.Outcomes {
+		terms = append(terms, o.Terms...)
+	}
+	for _, t := range terms {
+		source[t.Name] = t.Source
+	}
+	for _, t := range terms {
+		for _, n := range t.Interact {
+			if slices.Contains(chance, source[n]) {
+				return true
+			}
+		}
+	}
+	return false
 }
 
 // selectionSentence is the caveat on selection: the chosen models'

@@ -213,7 +213,7 @@ func writeMethods(d *doc, r *runner.Result) {
 		}
 		switch {
 		case len(or.TermTests) > 0:
-			s = append(s, termTestsMethods(or, p.Inference, sampling, c))
+			s = append(s, termTestsMethods(r, or, p.Inference, sampling, c))
 		case or.Chosen != nil && p.Inference.TermTests == plan.TermTestsNone:
 			s = append(s, "The plan switched the tests of each term of the chosen model off (`inference.term_tests: none`).")
 		}
@@ -225,6 +225,9 @@ func writeMethods(d *doc, r *runner.Result) {
 			s = append(s, "Predicted probabilities and marginal effects have delta-method standard errors (the intervals of probabilities made on their log-odds scale).")
 		case starts:
 			s = append(s, fmt.Sprintf("The random starts of constrained fits used the seed %d.", p.Seed))
+		}
+		if hm := hypothesesMethods(or); hm != "" {
+			s = append(s, hm)
 		}
 		if lp := levelPairsMethods(or); lp != "" {
 			s = append(s, lp)
@@ -666,7 +669,7 @@ func goodnessOfFitMethods(or *runner.OutcomeResult, c *citer) []string {
 }
 
 // what the tests assume.
-func termTestsMethods(or *runner.OutcomeResult, inf plan.Inference, sampling bool, c *citer) string {
+func termTestsMethods(r *runner.Result, or *runner.OutcomeResult, inf plan.Inference, sampling bool, c *citer) string {
 	var s []string
 	wald, lr := inf.WantsTermWald(), inf.WantsTermLR() && !sampling
 	switch {
@@ -698,7 +701,15 @@ func termTestsMethods(or *runner.OutcomeResult, inf plan.Inference, sampling boo
 			s = append(s, fmt.Sprintf("On the imputed data the likelihood-ratio tests were pooled by the D3 rule %s.", c.cite("d3")))
 		}
 	}
-	s = append(s, "These tests assume the chosen model holds and refer their statistics to large-sample distributions: the Wald and likelihood-ratio statistics can differ in small samples, in large samples they reject for effects too small to matter, and a term associated with the outcome given the others is not thereby a cause of it; their p-values were not corrected for the number of terms tested.")
+	cause := "a term associated with the outcome given the others is not thereby a cause of it"
+	if chance := r.Plan.ByChanceColumns(); len(chance) > 0 {
+		var code []string
+		for _, c := range chance {
+			code = append(code, mdCode(c))
+		}
+		cause = fmt.Sprintf("a term associated with the outcome given the others is not thereby a cause of it, except that the comparison of %s, assigned to the units by chance, has a causal reading under the trial's conditions", words.AndList(code))
+	}
+	s = append(s, fmt.Sprintf("These tests assume the chosen model holds and refer their statistics to large-sample distributions: the Wald and likelihood-ratio statistics can differ in small samples, in large samples they reject for effects too small to matter, and %s; their p-values were not corrected for the number of terms tested.", cause))
 	return strings.Join(s, " ")
 }
 

@@ -1039,6 +1039,12 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("run wrote outputs")
 				}
 			}},
+		{id: "P61", name: "assigned_by_chance on a column that is not a predictor", args: []string{"check", "--no-data"},
+			plan: edit("  file: d.csv", "  file: d.csv\n  weights: w") + "dictionary:\n  a: {label: A, assigned_by_chance: true}\n  b: {label: B}\n  w: {label: W, assigned_by_chance: true}\n", code: 1, lines: true,
+			want: []string{`P61.yaml:18:37: dictionary.w.assigned_by_chance: "w" is the weights column (data.weights), not a predictor: only a predictor's values can have been assigned to the units by chance (a randomized treatment); remove assigned_by_chance here`}},
+		{id: "P61", name: "assigned_by_chance that is not true or false", args: []string{"check", "--no-data"},
+			plan: goodPlan + "dictionary:\n  a: {label: A, assigned_by_chance: yes please}\n  b: {label: B}\n", code: 1,
+			want: []string{`dictionary.a.assigned_by_chance: want true or false, got string "yes please"`}},
 		{id: "P52", name: "a normal predictor whose dictionary range leaves out more than half of it", args: []string{"check", "--no-data"},
 			plan: goodPlan + "dictionary:\n  a: {range: [1, 5]}\n  b: {label: B}\n" + assumed("{a: 0.2}", ""), code: 1,
 			want: []string{`P52.yaml:18:19: assumptions.predictors.a: a normal distribution with mean 0 and sd 1 lies within "a"'s range [1, 5] in the dictionary (dictionary.a.range) only 15.9% of the time: draws outside it are drawn again, so the column drawn would have mean 1.525 and sd 0.4462, not the mean and sd stated; state a mean and sd whose normal the range holds at least half of, or widen the range`},

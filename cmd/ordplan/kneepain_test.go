@@ -37,6 +37,32 @@ func TestRegisteredExampleBeforeData(t *testing.T) {
 			t.Errorf("report.md lacks %q", want)
 		}
 	}
+	// The arm was assigned by chance (dictionary.arm.assigned_by_chance):
+	// the limits give its comparison a causal reading under the trial's
+	// conditions and the other predictors none; the primary hypothesis,
+	// one restriction in a parallel model and one per boundary in the
+	// others, is said to take its form from the chosen model, in the limits
+	// and in the Methods draft.
+	for _, want := range []string{
+		"- `arm` was assigned to the units by chance (the plan's dictionary says so, with assigned_by_chance). The comparison of its values (in the models, and in their predicted probabilities and marginal effects) has a causal reading under the conditions of the trial:",
+		"The other predictors (`age`, `baseline_pain` and `site`) were not assigned by chance: the models describe how the outcome is associated with them in these data, which does not show that they cause a change in it;",
+		"- The plan's hypotheses are read in the chosen model, and their tests took their form from it: `arm = 0` is a test of ",
+		"depended on the choice the rules made on the same data, and its p-value does not allow for that choice.",
+		"The plan's hypotheses were tested by Wald tests in every candidate model that has their parameters and are read in the chosen model, ",
+		"Where the candidates differ in the number of restrictions, the form of the test depended on the model the rules chose.",
+		"except that the comparison of `arm`, assigned to the units by chance, has a causal reading under the trial's conditions",
+		"| `arm` | predictor, assigned by chance | numeric | 0, 1 |",
+	} {
+		if !strings.Contains(string(md), want) {
+			t.Errorf("report.md lacks %q", want)
+		}
+	}
+	if strings.ContainsRune(string(md), '\ue000') {
+		t.Error("report.md holds the marker of Markdown cells")
+	}
+	if strings.Contains(string(md), "They do not show that a predictor causes a change in the outcome") {
+		t.Error("the limits deny a causal reading of every predictor, the randomized arm included")
+	}
 	if _, err := os.Stat(filepath.Join(dir, "r", "simulated-data.csv")); err != nil {
 		t.Error("the simulated data are not among the outputs")
 	}
