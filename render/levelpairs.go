@@ -7,6 +7,7 @@ import (
 	"strconv"
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/plan"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
@@ -50,7 +51,11 @@ func writeLevelPairs(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		if sampling {
 			d.p("%s", samplingAverageNote)
 		}
-		d.p("These are differences between groups in the fitted association, other predictors as observed: they do not say what moving a unit from one level to the other would change.")
+		if assignedByChance(r.Plan, set.Predictor) {
+			d.p("The levels of %s were assigned to the units by chance (the plan's dictionary says so): under the trial's conditions these differences are what assigning one level rather than the other changed in the outcome, for units like those that took part, other predictors as observed.", name)
+		} else {
+			d.p("These are differences between groups in the fitted association, other predictors as observed: they do not say what moving a unit from one level to the other would change.")
+		}
 		writePairEffects(d, or, set, level)
 		writePairsAtPoints(d, r, or, set, level)
 		writePairOddsRatios(d, or, set, level)
@@ -156,7 +161,11 @@ func writePairsAtPoints(d *doc, r *runner.Result, or *runner.OutcomeResult, set 
 			profileOutsideNote(d, or, "differences")
 		}
 		if k == 0 {
-			d.p("A difference at one point compares two groups that share that one covariate profile, in the fitted association: it describes units like that point, not the rows used on average (the average differences above can differ from it in size, even in sign), and it does not say what moving a unit from one level to the other would change.")
+			change := "and it does not say what moving a unit from one level to the other would change"
+			if assignedByChance(r.Plan, set.Predictor) {
+				change = "and, the levels having been assigned by chance, it is what assigning one level rather than the other changed for such units under the trial's conditions"
+			}
+			d.p("A difference at one point compares two groups that share that one covariate profile, in the fitted association: it describes units like that point, not the rows used on average (the average differences above can differ from it in size, even in sign), %s.", change)
 		}
 		d.captioned("Differences of predicted probabilities " + at + " between the levels of " + name).table(pairTable(me, pt.Adjusted, set.Multiplicity, level, refStat(or.Chosen.Result)))
 	}
@@ -308,12 +317,17 @@ func levelPairsCSV(or *runner.OutcomeResult) [][]string {
 
 // levelPairsMethods is the methods paragraph's sentence on the pairs of
 // levels ("" when the plan asks for none).
-func levelPairsMethods(or *runner.OutcomeResult) string {
-	var names, points []string
+func levelPairsMethods(p *plan.Plan, or *runner.OutcomeResult) string {
+	var names, points, chance, other []string
 	method := ""
 	for _, set := range or.LevelPairs {
 		if set.Note == "" {
 			names = append(names, fmt.Sprintf("%s (%d pairs)", mdText(set.Predictor), set.Family))
+			if assignedByChance(p, set.Predictor) {
+				chance = append(chance, mdText(set.Predictor))
+			} else {
+				other = append(other, mdText(set.Predictor))
+			}
 			method = set.Multiplicity
 			for _, pt := range set.AtPoints {
 				if at := pointWords(pt.Effects.Kind); !slices.Contains(points, at) {
@@ -342,5 +356,18 @@ func levelPairsMethods(or *runner.OutcomeResult) string {
 		}
 		s += fmt.Sprintf("; their p-values were adjusted by %s within each predictor's pairs for one category%s (odds ratios: at one boundary).", runner.MultiplicityName(method), at)
 	}
-	return s + " They compare groups in the fitted association and are not effects of changing a unit's level."
+	switch {
+	case len(chance) == 0:
+		return s + " They compare groups in the fitted association and are not effects of changing a unit's level."
+	case len(other) == 0:
+		return s + fmt.Sprintf(" The levels of %s were assigned to the units by chance, so under the trial's conditions these differences are effects of assigning one level rather than the other.", words.AndList(chance))
+	}
+	return s + fmt.Sprintf(" Those of %s, whose levels were assigned to the units by chance, are effects of assigning one level rather than the other under the trial's conditions; those of %s compare groups in the fitted association and are not effects of changing a unit's level.", words.AndList(chance), words.AndList(other))
+}
+
+// assignedByChance reports whether the plan's dictionary says that the
+// values of column col were assigned to the units by chance.
+func assignedByChance(p *plan.Plan, col string) bool {
+	e := p.EntryOf(col)
+	return e != nil && e.ByChance
 }

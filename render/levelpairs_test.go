@@ -138,3 +138,27 @@ func TestLevelPairsAtPointsReport(t *testing.T) {
 		t.Errorf("decisions.json keys not in snake_case: %v %v", bad, err)
 	}
 }
+
+// Pairs of levels of a predictor the dictionary says was assigned by
+// chance (dictionary.site.assigned_by_chance, invented as a randomized
+// site here) are read as effects of the assignment under the trial's
+// conditions, in the section and in the Methods draft; without the key they
+// are groups in the fitted association.
+func TestLevelPairsAssignedByChance(t *testing.T) {
+	dir, src := levelPairsPlan(t, "  marginal_effects: [average, means]\n  level_pairs: {predictors: [site]}\n")
+	plain := string(renderSource(t, dir, src, 0)["report.md"])
+	src += "dictionary:\n  site: {label: Site, assigned_by_chance: true}\n  x: {label: X}\n"
+	md := string(renderSource(t, dir, src, 0)["report.md"])
+	hasAll(t, "report.md (site assigned by chance)", md,
+		"The levels of site were assigned to the units by chance (the plan's dictionary says so): under the trial's conditions these differences are what assigning one level rather than the other changed in the outcome",
+		"and, the levels having been assigned by chance, it is what assigning one level rather than the other changed for such units under the trial's conditions.",
+		"The levels of site were assigned to the units by chance, so under the trial's conditions these differences are effects of assigning one level rather than the other.")
+	for _, not := range []string{"They compare groups in the fitted association", "These are differences between groups in the fitted association", "it does not say what moving a unit"} {
+		if strings.Contains(md, not) {
+			t.Errorf("report.md of a site assigned by chance holds %q", not)
+		}
+		if !strings.Contains(plain, not) {
+			t.Errorf("report.md without the key lacks %q", not)
+		}
+	}
+}

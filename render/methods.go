@@ -229,7 +229,7 @@ func writeMethods(d *doc, r *runner.Result) {
 		if hm := hypothesesMethods(or); hm != "" {
 			s = append(s, hm)
 		}
-		if lp := levelPairsMethods(or); lp != "" {
+		if lp := levelPairsMethods(p, or); lp != "" {
 			s = append(s, lp)
 		}
 		d.p("%s", strings.Join(s, " "))
