@@ -285,7 +285,9 @@ func RecordChanges(was, now *RunRecord) []string {
 	out = append(out, dc...)
 	out = append(out, fileChanges("the new-rows file", refList(was.NewRows), refList(now.NewRows))...)
 	out = append(out, fileChanges("the imputed set", was.Imputed, now.Imputed)...)
-	if was.Registration != nil && !sameJSON(was.Registration, now.Registration) {
+	// Two plans without a lock have no registration to differ in, whatever
+	// their lock files would be called.
+	if was.Registration != nil && !sameJSON(was.Registration, now.Registration) && !(unregistered(was.Registration) && unregistered(now.Registration)) {
 		out = append(out, "the plan's registration (its comparison with the lock file) changed")
 	}
 	for _, c := range []struct{ what, was, now string }{
@@ -449,4 +451,10 @@ func sensitivityChanges(prev, cur []SensitivityRecord) []string {
 		}
 	}
 	return out
+}
+
+// unregistered reports whether a run's record says its plan had no lock
+// file (state none).
+func unregistered(r *RegistrationRecord) bool {
+	return r != nil && r.State == "none"
 }

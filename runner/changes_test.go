@@ -190,4 +190,17 @@ func TestRecordChangesNamesEachInput(t *testing.T) {
 	if got := strings.Join(RecordChanges(was, now), "; "); got != "the data file d.csv changed" {
 		t.Errorf("data file: %q", got)
 	}
+	// Two plans without a lock (base.yaml, then base2.yaml) have no
+	// registration to differ in: it was said to have changed, as the
+	// names of their absent lock files differ. A plan frozen since has.
+	was, now = base(), base()
+	was.Registration = &RegistrationRecord{State: "none", LockFile: "base.lock.json"}
+	now.Registration = &RegistrationRecord{State: "none", LockFile: "base2.lock.json"}
+	if got := RecordChanges(was, now); len(got) != 0 {
+		t.Errorf("two plans without a lock: %q", got)
+	}
+	now.Registration = &RegistrationRecord{State: "matches", LockFile: "base.lock.json", CanonicalSHA256: "c"}
+	if got := strings.Join(RecordChanges(was, now), "; "); got != "the plan's registration (its comparison with the lock file) changed" {
+		t.Errorf("a plan frozen since: %q", got)
+	}
 }

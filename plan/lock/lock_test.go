@@ -212,6 +212,12 @@ func TestNoLock(t *testing.T) {
 	if err != nil || st.State != StateNone || st.LockFile != "p.lock.json" {
 		t.Fatalf("%v %+v", err, st)
 	}
+	// A deviation stated without a lock: nothing is frozen (it was said
+	// to explain "no change from the frozen plan").
+	note := st.UnusedNote(plan.Deviation{Key: "title", Line: 20})
+	if want := `deviations: "title" (line 20) explains a change, but nothing is frozen: the plan has no lock file (p.lock.json) whose plan it could depart from; the list is for changes made after ordplan freeze`; note != want {
+		t.Errorf("note %q, want %q", note, want)
+	}
 }
 
 func TestLockNotOverwrittenSilently(t *testing.T) {

@@ -182,8 +182,12 @@ func (st *Status) NearestChanged(dv plan.Deviation) string {
 }
 
 // UnusedNote says that a stated deviation explains no change from the
-// frozen plan, naming the changed key it may misspell.
+// frozen plan, naming the changed key it may misspell; or, when there is
+// no lock, that nothing is frozen.
 func (st *Status) UnusedNote(dv plan.Deviation) string {
+	if st.State == StateNone {
+		return fmt.Sprintf("deviations: %q (line %d) explains a change, but nothing is frozen: the plan has no lock file (%s) whose plan it could depart from; the list is for changes made after ordplan freeze", dv.Key, dv.Line, st.LockFile)
+	}
 	s := fmt.Sprintf("deviations: %q (line %d) explains no change from the frozen plan", dv.Key, dv.Line)
 	if k := st.NearestChanged(dv); k != "" {
 		s += fmt.Sprintf("; did you mean %q, which changed?", k)
