@@ -352,6 +352,23 @@ func termItems(dir string) []badInput {
 					t.Errorf("report.md (%v): want %q", err, w)
 				}
 			}},
+		{id: "T34", name: "a term named as a parameter of the models (tau, tau[1], b[1] beside a nonparallel b)", args: []string{"check"}, setup: writeTermsData,
+			plan: termsEdit("[site, x]", "[site, {name: tau, column: x}]", "[parallel]", "[parallel, nonparallel]"), code: 1,
+			want: []string{`T34.yaml:6:20: predictors[1]: design column "tau" cannot be made: "tau" is the name of the thresholds (tau[1], tau[2], ...): the column's nonparallel slopes would have their names; give the term another name (data cat.csv, outcome "y")` + "\n"},
+			check: func(t *testing.T, dir, out, errs string) {
+				cat := filepath.Join(dir, "cat.csv")
+				for _, c := range []struct{ preds, want string }{
+					{"x|as=tau,site|levels=north/east/south", `--predictors item 1: design column "tau" cannot be made: "tau" is the name of the thresholds`},
+					{"x|as=tau[1]", `--predictors item 1: design column "tau[1]" cannot be made: "tau[1]" has the form NAME[m] of the models' per-boundary parameters`},
+					{"x|as=site[1],site|levels=north/east/south|as=site", `--predictors item 1: design column "site[1]" cannot be made`},
+					{"x|as=phi.g", `--predictors item 1: design column "phi.g" cannot be made: "phi.g" is the name of the common factors`},
+				} {
+					_, e, code := runCLI(fitArgs(cat, "--predictors", c.preds, "--nonparallel", strings.SplitN(strings.SplitN(c.preds, "as=", 2)[1], ",", 2)[0])...)
+					if code != 1 || !strings.Contains(e, c.want) {
+						t.Errorf("fit --predictors %s: exit %d, want %q in\n%s", c.preds, code, c.want, e)
+					}
+				}
+			}},
 		{id: "W23", name: "a profile outside the population fitted: failing a subset condition, beyond the data (warned, flagged beside its tables)", args: []string{"run"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: x, at_least: 0}\npredictors:", "rules:", "inference: {marginal_effects: [profile], profile: {x: -0.25}, level_pairs: {predictors: [site]}}\nrules:"), code: 0,
 			want: []string{"y: chosen: cumulative/parallel/logit"},

@@ -7,6 +7,8 @@ import (
 	"strconv"
 	"strings"
 	"sync"
+
+	"ordplan/runner/fit"
 )
 
 // Term kinds.
@@ -167,6 +169,9 @@ func build(spec Spec, raw []float64, n int, w []float64, lines []int, fz *Frozen
 			return nil, err
 		}
 		for _, c := range t.Columns {
+			if why := fit.ReservedName(c); why != "" {
+				return nil, &Error{Key: ts.Key, Msg: fmt.Sprintf("design column %q cannot be made: %s; give the term another name", c, why)}
+			}
 			if slices.Contains(d.Columns, c) {
 				return nil, &Error{Key: ts.Key, Msg: fmt.Sprintf("design column %q would be made twice; give the term another name", c)}
 			}

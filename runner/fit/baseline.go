@@ -48,7 +48,7 @@ func (r *Result) Baseline(ref int) (*Baseline, error) {
 	row := 0
 	// intercepts
 	for i, j := range cats {
-		out.Names = append(out.Names, fmt.Sprintf("alpha[%d]", i+1))
+		out.Names = append(out.Names, IndexedName(alphaBase, i+1))
 		for k := 0; k < j; k++ {
 			A[row*P+ly.cut[k]] -= 1
 		}
@@ -60,7 +60,7 @@ func (r *Result) Baseline(ref int) (*Baseline, error) {
 	for p, name := range r.Predictors {
 		s := ly.slope[p]
 		for i, j := range cats {
-			out.Names = append(out.Names, fmt.Sprintf("%s[%d]", name, i+1))
+			out.Names = append(out.Names, IndexedName(name, i+1))
 			for k := 0; k < j; k++ {
 				A[row*P+s+k] += 1
 			}

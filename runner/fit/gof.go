@@ -7,6 +7,7 @@ import (
 	"math"
 	"slices"
 	"sort"
+	"strconv"
 	"strings"
 )
 
@@ -243,7 +244,7 @@ func indicatorData(d *Data, group []int, G int) *Data {
 func indicatorNames(G int) []string {
 	var names []string
 	for g := 1; g < G; g++ {
-		names = append(names, fmt.Sprintf("score_group_%d", g+1))
+		names = append(names, indicatorPrefix+strconv.Itoa(g+1))
 	}
 	return names
 }

@@ -2,6 +2,7 @@ package fit
 
 import (
 	"fmt"
+	"strconv"
 	"strings"
 
 	"ordplan/internal/words"
@@ -70,7 +71,53 @@ func (s *Structure) UnmarshalText(b []byte) (err error) {
 
 // TauName is the name of boundary parameter m (1-based): "tau[m]", indexed
 // like the nonparallel slopes x[m] of the same boundary.
-func TauName(m int) string { return fmt.Sprintf("tau[%d]", m) }
+func TauName(m int) string { return IndexedName(tauBase, m) }
+
+// IndexedName is the name of the parameter of base at boundary (or
+// category) m, 1-based: "base[m]". Every per-boundary name the models make
+// is written by it.
+func IndexedName(base string, m int) string { return fmt.Sprintf("%s[%d]", base, m) }
+
+// The bases of the names this package makes besides the design columns':
+// the thresholds tau[m], the common factors phi[m] and phi.GROUP[m] of
+// constrained and stereotype models, the intercepts alpha[m] of the
+// baseline-category and stereotype forms, and the group indicators
+// score_group_G of the goodness-of-fit refit.
+const (
+	tauBase         = "tau"
+	phiBase         = "phi"
+	alphaBase       = "alpha"
+	indicatorPrefix = "score_group_"
+)
+
+// ReservedName says why a design column cannot be called name, or "" when
+// it can: a name written NAME[m] is the form of every per-boundary
+// parameter (a threshold, a nonparallel slope, a common factor), and a
+// column called tau, phi, phi.GROUP or alpha would, made nonparallel, give
+// the names tau[m], phi[m], alpha[m] of other parameters; score_group_G is
+// the name of a goodness-of-fit indicator. A column named so would take
+// the place of another parameter in estimates, hypotheses and tests.
+func ReservedName(name string) string {
+	if base, idx, ok := strings.Cut(name, "["); ok && strings.HasSuffix(idx, "]") && allDigits(strings.TrimSuffix(idx, "]")) {
+		return fmt.Sprintf("%s has the form NAME[m] of the models' per-boundary parameters (thresholds %s, slopes of a nonparallel column %s[m], common factors %s)", strconv.Quote(name), IndexedName(tauBase, 1), base, IndexedName(phiBase, 2))
+	}
+	switch {
+	case name == tauBase:
+		return fmt.Sprintf("%q is the name of the thresholds (%s, %s, ...): the column's nonparallel slopes would have their names", name, TauName(1), TauName(2))
+	case name == phiBase || strings.HasPrefix(name, phiBase+"."):
+		return fmt.Sprintf("%q is the name of the common factors of constrained models (%s, %s, ...): the column's nonparallel slopes would have their names", name, IndexedName(name, 2), IndexedName(name, 3))
+	case name == alphaBase:
+		return fmt.Sprintf("%q is the name of the intercepts of the baseline-category form (%s, %s, ...): the column's slopes in that form would have their names", name, IndexedName(name, 1), IndexedName(name, 2))
+	case strings.HasPrefix(name, indicatorPrefix) && allDigits(strings.TrimPrefix(name, indicatorPrefix)):
+		return fmt.Sprintf("%q is the name of a group indicator of the goodness-of-fit test", name)
+	}
+	return ""
+}
+
+// allDigits reports whether s is one or more ASCII digits.
+func allDigits(s string) bool {
+	return s != "" && strings.Trim(s, "0123456789") == ""
+}
 
 // BoundaryLabel labels boundary m (0-based) between two categories by
 // their labels, lower first: "SD/D".
@@ -230,7 +277,7 @@ func newLayout(m Model, J int, predictors []string) (*layout, error) {
 			ly.params = append(ly.params, param{kind: pParallel, k: k, name: name})
 		case Nonparallel:
 			for j := 0; j < q; j++ {
-				ly.params = append(ly.params, param{kind: pFree, k: k, m: j, name: fmt.Sprintf("%s[%d]", name, j+1)})
+				ly.params = append(ly.params, param{kind: pFree, k: k, m: j, name: IndexedName(name, j+1)})
 			}
 		case Constrained:
 			ly.params = append(ly.params, param{kind: pGamma, k: k, group: ly.groupOf[k], name: name})
@@ -244,13 +291,13 @@ func newLayout(m Model, J int, predictors []string) (*layout, error) {
 		idx[0] = -1
 		for j := 1; j < q; j++ {
 			idx[j] = len(ly.params)
-			name := fmt.Sprintf("phi[%d]", j+1)
+			name := IndexedName(phiBase, j+1)
 			if multi || ly.gnames[d] != "" {
 				gn := ly.gnames[d]
 				if gn == "" {
 					gn = fmt.Sprintf("g%d", d+1)
 				}
-				name = fmt.Sprintf("phi.%s[%d]", gn, j+1)
+				name = IndexedName(phiBase+"."+gn, j+1)
 			}
 			ly.params = append(ly.params, param{kind: pPhi, m: j, group: d, name: name})
 		}

@@ -77,7 +77,7 @@ func (r *Result) StereotypeScores() (*StereotypeScores, error) {
 	out := &StereotypeScores{Normalization: StereotypeNormalization, Categories: r.Categories, Predictors: r.Predictors}
 	row := 0
 	for j := 1; j < J; j++ {
-		out.Names = append(out.Names, fmt.Sprintf("alpha[%d]", j+1))
+		out.Names = append(out.Names, IndexedName(alphaBase, j+1))
 		for m := 0; m < j; m++ {
 			est[row] -= th[ly.cut[m]]
 			A[row*P+ly.cut[m]] = -1
@@ -85,7 +85,7 @@ func (r *Result) StereotypeScores() (*StereotypeScores, error) {
 		row++
 	}
 	for j := 1; j < J-1; j++ {
-		out.Names = append(out.Names, fmt.Sprintf("score[%d]", j+1))
+		out.Names = append(out.Names, IndexedName("score", j+1))
 		est[row] = C[j] / S
 		for m := 1; m < q; m++ { // phi_1 is fixed
 			in := 0.0
