@@ -1375,6 +1375,15 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("check of the plan init wrote: exit %d\n%s%s", code, o, e)
 				}
 			}},
+		{id: "D45", name: "a subset value written as another spelling of a number the column holds (none_of: [1.0], the data 1)", args: []string{"run"},
+			plan: edit("predictors: [a, b]", "subset:\n  - {column: b, none_of: [1.0]}\npredictors: [a]"), code: 0,
+			check: func(t *testing.T, dir, out, errs string) {
+				b, err := os.ReadFile(filepath.Join(dir, "D45-out", "report.md"))
+				m := regexp.MustCompile(`outside the subset b not in \{1\.0\}: (\d+)\)`).FindStringSubmatch(string(b))
+				if err != nil || m == nil || m[1] == "0" || strings.Contains(string(b), "keeps or drops no row") {
+					t.Errorf("none_of: [1.0] dropped no row of b = 1 (%v): %v", err, m)
+				}
+			}},
 		{id: "D42", name: "levels and categories in another Unicode form than the data", args: []string{"run"}, setup: unicodeForms,
 			plan: edit("  file: d.csv\n", "  file: nfd.csv\n", "  - column: y\n", "  - column: q\n    categories: [mal, bien, très bien]\n", "predictors: [a, b]", "categorical:\n  city: {levels: [Bern, Zürich, Genève]}\npredictors: [a, b, city]"), code: 0,
 			check: func(t *testing.T, dir, out, errs string) {

@@ -3,6 +3,7 @@ package data
 import (
 	"fmt"
 	"io"
+	"maps"
 	"math"
 	"slices"
 	"strconv"
@@ -935,6 +936,9 @@ func CheckListValues(file string, opt Options, seen ListValues) ([]string, error
 		for _, v := range k.Values {
 			if seen[textKey(v)] || slices.ContainsFunc(declared, func(l string) bool { return sameText(l, v) }) {
 				continue
+			}
+			if slices.ContainsFunc(slices.Collect(maps.Keys(seen)), func(h string) bool { return !missing[h] && sameValue(v, h, opt.Dialect) }) {
+				continue // the same number written otherwise (3.0 for 3): keeps compares it as a number
 			}
 			var near []string
 			for h := range seen {

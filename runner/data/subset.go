@@ -42,9 +42,9 @@ func (c Condition) String() string {
 func (c Condition) keeps(cell string, d Dialect) (bool, string) {
 	switch c.Op {
 	case "in":
-		return slices.ContainsFunc(c.Values, func(s string) bool { return sameText(s, cell) }), ""
+		return slices.ContainsFunc(c.Values, func(s string) bool { return sameValue(s, cell, d) }), ""
 	case "not_in":
-		return !slices.ContainsFunc(c.Values, func(s string) bool { return sameText(s, cell) }), ""
+		return !slices.ContainsFunc(c.Values, func(s string) bool { return sameValue(s, cell, d) }), ""
 	}
 	v, msg := d.number(cell)
 	if msg != "" {
@@ -79,4 +79,24 @@ func (c Condition) numeric() bool {
 func (c Condition) Keeps(cell string) bool {
 	ok, _ := c.keeps(cell, Dialect{})
 	return ok
+}
+
+// sameValue reports whether a value of a one_of or none_of condition
+// names the cell: the same text (sameText), or the same number written
+// otherwise ("3.0" or "3e0" for a cell 3, the cell in the file's decimal
+// mark), as outcome codes are read (2.0 is the code 2). A boolean word is
+// compared as text only.
+func sameValue(v, cell string, d Dialect) bool {
+	if sameText(v, cell) {
+		return true
+	}
+	if _, isBool := boolWord(cell); isBool {
+		return false
+	}
+	y, err := strconv.ParseFloat(strings.TrimSpace(v), 64)
+	if err != nil {
+		return false
+	}
+	x, msg := d.number(cell)
+	return msg == "" && x == y
 }
