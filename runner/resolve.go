@@ -476,10 +476,60 @@ func ClusterCount(ds *data.Dataset) int {
 // fit.FewClusters clusters (at least 2: one is refused, Clusters), or "":
 // the one wording, which check, run (the outcome's notes, decisions.json's
 // and the report's) and ordplan fit give.
+//
+// It ends with the warning of cluster ids that differ only in letter case
+// (clusterCase), when there are such.
 func (a *Analysis) FewClusters(r Reading, ds *data.Dataset) string {
 	if a.Errors.Covariance != fit.Clustered || len(ds.Cluster) == 0 {
 		return ""
 	}
+	few := a.fewClusters(r, ds)
+	if c := a.clusterCase(r, ds); c != "" {
+		if few != "" {
+			return few + "; also " + c
+		}
+		return c
+	}
+	return few
+}
+
+// clusterCase warns of cluster ids of the rows used that differ only in
+// letter case ("K35" and "k35"): they are counted as different clusters,
+// and they may be one written two ways; it names the first pair and
+// counts the others, or returns "".
+func (a *Analysis) clusterCase(r Reading, ds *data.Dataset) string {
+	ids := map[string]bool{}
+	for _, c := range ds.Cluster {
+		ids[c] = true
+	}
+	byFold := map[string][]string{}
+	for _, c := range slices.Sorted(maps.Keys(ids)) {
+		k := strings.ToLower(c)
+		byFold[k] = append(byFold[k], c)
+	}
+	var groups [][]string
+	for _, k := range slices.Sorted(maps.Keys(byFold)) {
+		if len(byFold[k]) > 1 {
+			groups = append(groups, byFold[k])
+		}
+	}
+	if len(groups) == 0 {
+		return ""
+	}
+	var first []string
+	for _, c := range groups[0] {
+		first = append(first, strconv.Quote(c))
+	}
+	more := ""
+	if len(groups) > 1 {
+		more = fmt.Sprintf(", and %d more such sets of ids", len(groups)-1)
+	}
+	return fmt.Sprintf("%s: column %q holds cluster ids that differ only in letter case (%s%s): each is counted as a cluster of its own; if they name one cluster, write its id alike in every row",
+		a.clusterKey(), r.Options.Cluster, strings.Join(first, " and "), more)
+}
+
+// fewClusters is FewClusters' warning of too few clusters, or "".
+func (a *Analysis) fewClusters(r Reading, ds *data.Dataset) string {
 	g := ClusterCount(ds)
 	if g < 2 || g >= fit.FewClusters {
 		return ""

@@ -107,6 +107,18 @@ func imputedClusterData(t *testing.T, dir, id string) {
 	stack("imp-clu-both.csv", func(int) bool { return true })
 }
 
+// clusterSpellings writes clspell.csv beside the plan: d.csv with a
+// cluster column num dealing the rows into 48 clusters whose ids are
+// written in turn 7, 7.0 and 07, and a column word whose 48 ids are
+// written in turn k7 and K7.
+func clusterSpellings(t *testing.T, dir, id string) {
+	t.Helper()
+	withColumns(t, dir, "clspell.csv", "num,word", func(i int, _ []string) string {
+		g := i % 48
+		return fmt.Sprintf("%s,%s", []string{strconv.Itoa(g), strconv.Itoa(g) + ".0", "0" + strconv.Itoa(g)}[i/48%3], []string{"k", "K"}[i/48%2]+strconv.Itoa(g))
+	})
+}
+
 // refitData writes jk.csv beside the plan: d.csv with a column site
 // dealing the rows into clusters k, m and n, except that every row with b
 // = 1 in category 1 is in cluster p: without p, b = 1 never meets
@@ -1933,6 +1945,12 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("a computed Wald test is said not to be read")
 				}
 			}},
+		{id: "D46", name: "cluster ids written as one number in two ways (7, 7.0, 07)", setup: clusterSpellings, code: 0,
+			args: fitArgs(d("clspell.csv"), "--predictors", "a,b", "--covariance", "clustered", "--cluster", "num"),
+			want: []string{"), 48 clusters\n"}},
+		{id: "W28", name: "cluster ids that differ only in letter case (warned, not merged)", setup: clusterSpellings, code: 0,
+			args: fitArgs(d("clspell.csv"), "--predictors", "a,b", "--covariance", "clustered", "--cluster", "word"),
+			want: []string{"), 96 clusters\n", `Warning: --cluster: column "word" holds cluster ids that differ only in letter case ("K0" and "k0", and 47 more such sets of ids): each is counted as a cluster of its own; if they name one cluster, write its id alike in every row.`}},
 		{id: "W11", name: "few_clusters without clustered errors", args: []string{"check"},
 			plan: edit("rules:", "few_clusters: jackknife\nrules:"), code: 1,
 			want: []string{`W11.yaml:11:15: few_clusters: jackknife corrects clustered errors, but covariance is "observed": set covariance: clustered with data.cluster naming the cluster column, or remove few_clusters`}},

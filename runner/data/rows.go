@@ -463,6 +463,39 @@ func (r *reader) missingWordHint(col, cell string) string {
 
 // intern returns one copy of a cluster id for all rows that have it, so
 // that kept ids do not hold on to the text they were read from.
+// ClusterID is the id under which a cluster cell is counted: a cell
+// written as a decimal number (in the file's decimal mark) is that
+// number's shortest text, so that 7, 7.0, 07 and +7 are one cluster (as
+// 2.0 is the outcome code 2) while a long id keeps all its digits (the
+// text is rewritten, not read as a double); any other cell is its text.
+func ClusterID(cell string, d Dialect) string {
+	mark := byte('.')
+	if d.DecimalComma {
+		mark = ','
+	}
+	s, neg := strings.CutPrefix(cell, "-")
+	if !neg {
+		s = strings.TrimPrefix(cell, "+")
+	}
+	whole, frac, _ := strings.Cut(s, string(mark))
+	digits := func(x string) bool { return strings.Trim(x, "0123456789") == "" }
+	if whole+frac == "" || !digits(whole) || !digits(frac) {
+		return cell
+	}
+	whole, frac = strings.TrimLeft(whole, "0"), strings.TrimRight(frac, "0")
+	if whole == "" {
+		whole = "0"
+	}
+	out := whole
+	if frac != "" {
+		out += "." + frac
+	}
+	if neg && out != "0" {
+		out = "-" + out
+	}
+	return out
+}
+
 func (t *rowTally) intern(s string) string {
 	if c, ok := t.clusters[s]; ok {
 		return c
@@ -545,7 +578,7 @@ func (r *reader) keepValues(t *rowTally, d *Dataset, row *cells, line int) {
 		d.Offset = append(d.Offset, row.off)
 	}
 	if opt.Cluster != "" {
-		d.Cluster = append(d.Cluster, t.intern(row.cl))
+		d.Cluster = append(d.Cluster, t.intern(ClusterID(row.cl, opt.Dialect)))
 	}
 }
 
