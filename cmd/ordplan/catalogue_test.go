@@ -2428,6 +2428,8 @@ func commandLineItems(dir string) []badInput {
 			want: []string{"ordplan fit: --confidence-level must be a number strictly between 0 and 1, not 1"}},
 		{id: "C9", name: "--few-clusters without clustered errors", args: fitArgs(d, "--predictors", "a", "--few-clusters", "jackknife"), code: 2,
 			want: []string{"ordplan fit: --few-clusters jackknife corrects clustered errors, but --covariance is observed: give --covariance clustered --cluster COL, or leave --few-clusters out"}},
+		{id: "C10", name: "--cluster without clustered errors", args: fitArgs(d, "--predictors", "a", "--cluster", "b"), code: 2,
+			want: []string{"ordplan fit: --cluster: the cluster column is used only with --covariance clustered (--covariance is observed); give --covariance clustered or leave --cluster out"}},
 		{id: "C8", name: "ordplan power given a sample size twice", args: []string{"power", "--n", "100, 200,100", "--replicates", "2", "--out", filepath.Join(dir, "C8-power")}, code: 2,
 			plan: goodPlan + assumed("{a: 0.2}", ""),
 			want: []string{`ordplan power: --n: the sample size 100 is given twice (items 1 and 3 of "100, 200,100"): each size is simulated once; give every size once`},

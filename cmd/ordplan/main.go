@@ -464,6 +464,10 @@ func (f *fitFlags) usageProblem(fs *flag.FlagSet) string {
 	if *f.headerRow < 1 {
 		return fmt.Sprintf("--header-row must be a sheet row number, 1 or more (got %d)", *f.headerRow)
 	}
+	if *f.cluster != "" && f.covariance != fit.Clustered {
+		// The plan's data.cluster check, in the flags' names.
+		return fmt.Sprintf("--cluster: the cluster column is used only with --covariance clustered (--covariance is %s); give --covariance clustered or leave --cluster out", f.covariance)
+	}
 	if f.fewClusters != fit.NoCorrection && f.covariance != fit.Clustered {
 		return fmt.Sprintf("--few-clusters %s corrects clustered errors, but --covariance is %s: give --covariance clustered --cluster COL, or leave --few-clusters out", f.fewClusters, f.covariance)
 	}
