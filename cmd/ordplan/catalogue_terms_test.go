@@ -369,6 +369,31 @@ func termItems(dir string) []badInput {
 					}
 				}
 			}},
+		{id: "T35", name: "ordplan fit --predictors: an option given a value it does not take, or given twice, or a number that is not finite", setup: writeTermsData, code: 1,
+			args: fitArgs(cat, "--predictors", "x|scale=2"),
+			want: []string{`--predictors: predictor 1 ("x|scale=2"): |scale=2: unknown scale "2" (want sd: |scale divides by the sample SD; to divide by another number, transform the column before)` + "\n"},
+			check: func(t *testing.T, dir, out, errs string) {
+				for item, want := range map[string]string{
+					"x|scale=0":                            `|scale=0: unknown scale "0" (want sd`,
+					"site|levels=north/east/south|drop=no": `|drop takes no value, got |drop=no (write |drop)`,
+					"x|log+1=10":                           `|log+1 takes no value, got |log+1=10 (write |log+1)`,
+					"x|sqrt=5":                             `|sqrt takes no value, got |sqrt=5 (write |sqrt)`,
+					"x|log+5|log+5":                        `|log is given twice (|log+5 and |log+5): give each option once`,
+					"x|polynomial=2|polynomial=3":          `|polynomial is given twice (|polynomial=2 and |polynomial=3): give each option once`,
+					"x|centre=mean|centre=1":               `|centre is given twice (|centre=mean and |centre=1): give each option once`,
+					"x|centre=NaN":                         `centre=NaN: want mean or a finite number`,
+					"x|log+NaN":                            `bad shift in "log+NaN": "NaN" is not a finite number (want log+NUMBER or log-NUMBER)`,
+					"x|spline=1/Inf/3":                     `spline=1/Inf/3: "Inf" is not a finite number`,
+				} {
+					_, e, code := runCLI(fitArgs(filepath.Join(dir, "cat.csv"), "--predictors", item)...)
+					if code != 1 || !strings.Contains(e, fmt.Sprintf("predictor 1 (%q): ", item)+want) {
+						t.Errorf("--predictors %s: exit %d, want %q in\n%s", item, code, want, e)
+					}
+				}
+				if _, e, code := runCLI(fitArgs(filepath.Join(dir, "cat.csv"), "--predictors", "x|scale=sd")...); code != 0 {
+					t.Errorf("|scale=sd, the plan's word: exit %d\n%s", code, e)
+				}
+			}},
 		{id: "W23", name: "a profile outside the population fitted: failing a subset condition, beyond the data (warned, flagged beside its tables)", args: []string{"run"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: x, at_least: 0}\npredictors:", "rules:", "inference: {marginal_effects: [profile], profile: {x: -0.25}, level_pairs: {predictors: [site]}}\nrules:"), code: 0,
 			want: []string{"y: chosen: cumulative/parallel/logit"},

@@ -3,6 +3,7 @@ package main
 import (
 	"errors"
 	"fmt"
+	"math"
 	"reflect"
 	"slices"
 	"strconv"
@@ -113,9 +114,23 @@ func parseCompactTerm(item string, earlier map[string]bool, terms []design.TermS
 	t.Source = head
 	src := &design.Source{Name: head}
 	var suffix []string
+	given := map[string]string{} // option -> the item's text that gave it
 	for _, o := range parts[1:] {
 		o = strings.TrimSpace(o)
 		k, v, hasV := strings.Cut(o, "=")
+		// One option once, as a plan's key (a mapping holds a key once);
+		// an option without a value takes none.
+		opt := k
+		if strings.HasPrefix(k, "log+") || strings.HasPrefix(k, "log-") {
+			opt = "log"
+		}
+		if first, ok := given[opt]; ok {
+			return t, nil, fmt.Errorf("|%s is given twice (|%s and |%s): give each option once", opt, first, o)
+		}
+		given[opt] = o
+		if hasV && (opt == "log" || k == "sqrt" || k == "drop") {
+			return t, nil, fmt.Errorf("|%s takes no value, got |%s (write |%s)", k, o, k)
+		}
 		switch {
 		case k == "levels":
 			levels := strings.Split(v, "/")
@@ -136,9 +151,9 @@ func parseCompactTerm(item string, earlier map[string]bool, terms []design.TermS
 				if strings.HasPrefix(k, "log-") {
 					num = strings.TrimPrefix(k, "log")
 				}
-				x, err := strconv.ParseFloat(num, 64)
+				x, err := finiteNumber(num)
 				if err != nil {
-					return t, nil, fmt.Errorf("bad shift in %q (want log+NUMBER or log-NUMBER)", o)
+					return t, nil, fmt.Errorf("bad shift in %q: %v (want log+NUMBER or log-NUMBER)", o, err)
 				}
 				t.Shift = x
 			}
@@ -150,14 +165,18 @@ func parseCompactTerm(item string, earlier map[string]bool, terms []design.TermS
 			if v == "mean" {
 				t.Centre = "mean"
 			} else {
-				x, err := strconv.ParseFloat(v, 64)
+				x, err := finiteNumber(v)
 				if err != nil {
-					return t, nil, fmt.Errorf("centre=%s: want mean or a number", v)
+					return t, nil, fmt.Errorf("centre=%s: want mean or a finite number", v)
 				}
 				t.Centre, t.CentreAt = "value", x
 			}
 			suffix = append(suffix, "c")
 		case k == "scale":
+			if hasV && v != "sd" {
+				// The plan's scale: takes the one word sd.
+				return t, nil, fmt.Errorf("|%s: unknown scale %q (want sd: |scale divides by the sample SD; to divide by another number, transform the column before)", o, v)
+			}
 			t.Scale = true
 			suffix = append(suffix, "s")
 		case k == "polynomial" && hasV:
@@ -178,9 +197,9 @@ func parseCompactTerm(item string, earlier map[string]bool, terms []design.TermS
 			q := strings.HasPrefix(v, "q")
 			var xs []float64
 			for _, f := range strings.Split(strings.TrimPrefix(v, "q"), "/") {
-				x, err := strconv.ParseFloat(f, 64)
+				x, err := finiteNumber(f)
 				if err != nil {
-					return t, nil, fmt.Errorf("spline=%s: %q is not a number", v, f)
+					return t, nil, fmt.Errorf("spline=%s: %v", v, err)
 				}
 				xs = append(xs, x)
 			}
@@ -249,6 +268,19 @@ func parseCompactTerm(item string, earlier map[string]bool, terms []design.TermS
 		}
 	}
 	return t, src, nil
+}
+
+// finiteNumber reads a number of an option, refusing NaN and infinities
+// as the plan's keys do.
+func finiteNumber(s string) (float64, error) {
+	x, err := strconv.ParseFloat(s, 64)
+	if err != nil {
+		return 0, fmt.Errorf("%q is not a number", s)
+	}
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return 0, fmt.Errorf("%q is not a finite number", s)
+	}
+	return x, nil
 }
 
 // compactOption is the compact form's word for an option the design's
