@@ -1396,6 +1396,34 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("none_of: [1.0] dropped no row of b = 1 (%v): %v", err, m)
 				}
 			}},
+		{id: "D47", name: "the header line repeated inside the data (files joined with their headers)", args: fitArgs(d("hdrmid.csv"), "--predictors", "a,b"), code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+				if err != nil {
+					t.Fatal(err)
+				}
+				lines := strings.SplitAfter(string(b), "\n")
+				joined := strings.Join(lines[:61], "") + lines[0] + strings.Join(lines[61:], "")
+				if err := os.WriteFile(filepath.Join(dir, "hdrmid.csv"), []byte(joined), 0o644); err != nil {
+					t.Fatal(err)
+				}
+			},
+			want: []string{"ordplan: hdrmid.csv:62: this line repeats the header (y,a,b,c,d,big,tiny) of line 1: a data file has one header line; remove the repeated one (files joined together with their headers, or a table written twice?)\n"},
+			check: func(t *testing.T, dir, out, errs string) {
+				want := "hdrmid.csv:62: this line repeats the header"
+				if _, e, code := runCLI("init", filepath.Join(dir, "D47init.yaml"), "--data", filepath.Join(dir, "hdrmid.csv")); code != 1 || !strings.Contains(e, want) {
+					t.Errorf("init: exit %d\n%s", code, e)
+				}
+				if _, err := os.Stat(filepath.Join(dir, "D47init.yaml")); !os.IsNotExist(err) {
+					t.Errorf("init wrote a plan from the file: %v", err)
+				}
+				if err := os.WriteFile(filepath.Join(dir, "D47.yaml"), []byte(strings.Replace(goodPlan, "file: d.csv", "file: hdrmid.csv", 1)), 0o644); err != nil {
+					t.Fatal(err)
+				}
+				if _, e, code := runCLI("check", filepath.Join(dir, "D47.yaml")); code != 1 || !strings.Contains(e, want) {
+					t.Errorf("check: exit %d\n%s", code, e)
+				}
+			}},
 		{id: "D42", name: "levels and categories in another Unicode form than the data", args: []string{"run"}, setup: unicodeForms,
 			plan: edit("  file: d.csv\n", "  file: nfd.csv\n", "  - column: y\n", "  - column: q\n    categories: [mal, bien, très bien]\n", "predictors: [a, b]", "categorical:\n  city: {levels: [Bern, Zürich, Genève]}\npredictors: [a, b, city]"), code: 0,
 			check: func(t *testing.T, dir, out, errs string) {

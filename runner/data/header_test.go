@@ -89,3 +89,29 @@ func TestAllRowsZeroWeight(t *testing.T) {
 		t.Errorf("got %v, want %s", err, want)
 	}
 }
+
+// A data line that repeats the header (files joined each with its header)
+// is refused at its line, by the reader of fits and by the profile of
+// ordplan init, even where a subset condition would drop it; a line that
+// repeats only some names is an ordinary row.
+func TestHeaderRepeated(t *testing.T) {
+	raw := []byte("y,a,g\n1,0.5,n\n2,1.5,s\n y , a,g\n1,0.1,n\n2,0.2,s\n")
+	const want = `d.csv:4: this line repeats the header (y,a,g) of line 1: a data file has one header line; remove the repeated one`
+	for _, keep := range [][]Condition{nil, {{Column: "g", Op: "in", Values: []string{"n", "s"}, Key: "subset[0]"}}} {
+		_, err := readBytes(raw, "d.csv", Options{Outcome: "y", Predictors: []string{"a"}, MissingTokens: []string{""}, Keep: keep})
+		if err == nil || !strings.Contains(err.Error(), want) {
+			t.Errorf("subset %v: %v, want %q", keep, err, want)
+		}
+	}
+	path := filepath.Join(t.TempDir(), "d.csv")
+	if err := os.WriteFile(path, raw, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := ProfileFile(path, []string{""}, Dialect{}); err == nil || !strings.Contains(err.Error(), want[len("d.csv"):]) {
+		t.Errorf("profile: %v", err)
+	}
+	part := []byte("y,a,g\n1,0.5,n\n2,1.5,s\ny,a,x\n")
+	if _, err := readBytes(part, "d.csv", Options{Outcome: "y", Predictors: []string{"a"}, MissingTokens: []string{""}}); err == nil || strings.Contains(err.Error(), "repeats the header") {
+		t.Errorf("a line repeating two of three names: %v", err)
+	}
+}

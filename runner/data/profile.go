@@ -145,6 +145,9 @@ func (r *reader) profile() ([]Profile, error) {
 		if err != nil {
 			return nil, r.csvErr(err, rec)
 		}
+		if r.repeatsHeader(rec) {
+			return nil, r.headerAgain()
+		}
 		for i, cell := range rec[:min(len(rec), len(out))] { // not the unnamed columns after the last name
 			p := &out[i]
 			p.Rows++

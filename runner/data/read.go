@@ -121,6 +121,10 @@ type reader struct {
 	// thousands (thousandsPoints), for Dataset.Notes and PointNotes, and
 	// pointCols the columns they are of
 	pointNotes, pointCols []string
+	// headerNames: the column names and the line they are on, once read
+	// (names), to know a data line that repeats them
+	headerNames []string
+	headerLine  int
 }
 
 func (r *reader) fail(line int, column, format string, args ...any) *Error {
@@ -260,7 +264,34 @@ func (r *reader) names() ([]string, map[string]int, error) {
 		where[n] = i
 		names[i] = n
 	}
+	r.headerNames, r.headerLine = names, line
 	return names, where, nil
+}
+
+// repeatsHeader reports whether a data record is the header line again
+// (every named column's cell its name, spaces aside), as when files were
+// joined each with its header: the first cell is compared first, so that
+// a data row costs one comparison.
+func (r *reader) repeatsHeader(rec []string) bool {
+	if len(r.headerNames) == 0 || len(rec) < len(r.headerNames) || strings.TrimSpace(rec[0]) != r.headerNames[0] {
+		return false
+	}
+	for i, n := range r.headerNames {
+		if strings.TrimSpace(rec[i]) != n {
+			return false
+		}
+	}
+	return true
+}
+
+// headerAgain is the error of a data record that repeats the header.
+func (r *reader) headerAgain() *Error {
+	line, _ := r.cr.FieldPos(0)
+	shown := strings.Join(r.headerNames, ",")
+	if len(shown) > 60 {
+		shown = shown[:57] + "..."
+	}
+	return r.fail(line, "", "this line repeats the header (%s) of line %d: a data file has one header line; remove the repeated one (files joined together with their headers, or a table written twice?)", shown, r.headerLine)
 }
 
 // dialectHint is e with, when the first lines of the CSV text look

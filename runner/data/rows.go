@@ -57,6 +57,9 @@ func (r *reader) newDataset() *Dataset {
 // record takes one data record (already counted in d.RowsRead): the
 // subset conditions, the cells, then the row is kept or counted.
 func (r *reader) record(t *rowTally, d *Dataset, rec []string) error {
+	if r.repeatsHeader(rec) {
+		return r.headerAgain()
+	}
 	if out, err := r.outsideSubset(t, rec); err != nil {
 		return err
 	} else if out >= 0 {
