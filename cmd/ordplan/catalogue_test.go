@@ -1424,6 +1424,22 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("check: exit %d\n%s", code, e)
 				}
 			}},
+		{id: "D48", name: "a weight of 1e300, an offset of 1e20", args: fitArgs(d("wobig.csv"), "--predictors", "a,b", "--weights", "wbig"), code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				withColumns(t, dir, "wobig.csv", "wbig,obig", func(i int, _ []string) string {
+					if i == 3 {
+						return "1e300,1e20"
+					}
+					return "1,0"
+				})
+			},
+			want: []string{`ordplan: wobig.csv:5: column "wbig": weight "1e300" is larger than 1e15: a weight counts the observations a row stands for (or their share of a population), and sums of such weights lose the digits of the likelihood and its errors; check the column, or divide it by a power of ten` + "\n"},
+			check: func(t *testing.T, dir, out, errs string) {
+				want := `wobig.csv:5: column "obig": offset "1e20" is beyond ±1e8: an offset is added to the linear predictor as it is (its coefficient is 1), where a probability is already 0 or 1 from about ±40 on, and such a value leaves the model's own terms no digits; give the offset on the scale of the linear predictor (the log of an exposure, not the exposure)` + "\n"
+				if _, e, code := runCLI(fitArgs(filepath.Join(dir, "wobig.csv"), "--predictors", "a,b", "--offset", "obig")...); code != 1 || !strings.HasSuffix(e, want) {
+					t.Errorf("offset 1e20: exit %d\n%s", code, e)
+				}
+			}},
 		{id: "D42", name: "levels and categories in another Unicode form than the data", args: []string{"run"}, setup: unicodeForms,
 			plan: edit("  file: d.csv\n", "  file: nfd.csv\n", "  - column: y\n", "  - column: q\n    categories: [mal, bien, très bien]\n", "predictors: [a, b]", "categorical:\n  city: {levels: [Bern, Zürich, Genève]}\npredictors: [a, b, city]"), code: 0,
 			check: func(t *testing.T, dir, out, errs string) {

@@ -287,9 +287,9 @@ func (r *reader) valueCell(p *fastPlan, f *fastField, v *parquet.Value, out *cel
 		case fastNumber:
 			xs[f.pos] = x
 		case fastWeight:
-			out.w, ok = x, x >= 0
+			out.w, ok = x, weightInRange(x)
 		default:
-			out.off = x
+			out.off, ok = x, offsetInRange(x)
 		}
 	case fastCode:
 		switch v.Kind() {
@@ -593,9 +593,10 @@ func (r *reader) readUnit(c *columnRecords, u columnUnit, used []int, ch *chunk,
 							xb[j*K+f.pos] = x
 						case f.kind == fastWeight:
 							rows[j].w = x
-							slow[j] = slow[j] || x < 0
+							slow[j] = slow[j] || !weightInRange(x)
 						default:
 							rows[j].off = x
+							slow[j] = slow[j] || !offsetInRange(x)
 						}
 					}
 					continue

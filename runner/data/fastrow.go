@@ -278,9 +278,10 @@ func (r *reader) fastRow(p *fastPlan, t *rowTally, s string, i, hi int, x []floa
 			x[f.pos] = float64(l)
 		case fastWeight:
 			row.w = v
-			ok = ok && v >= 0
+			ok = ok && weightInRange(v)
 		case fastOffset:
 			row.off = v
+			ok = ok && offsetInRange(v)
 		case fastCluster:
 			row.cl = cell
 		}
@@ -389,11 +390,14 @@ func (p *fastPlan) quickRow(s string, i, hi int, x []float64, row *cells) (int, 
 		case fastNumber:
 			x[f.pos] = v
 		case fastWeight:
-			if !(v >= 0) {
+			if !weightInRange(v) {
 				return 0, false
 			}
 			row.w = v
 		case fastOffset:
+			if !offsetInRange(v) {
+				return 0, false
+			}
 			row.off = v
 		}
 	}

@@ -361,13 +361,20 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 			}
 		case roleWeights:
 			row.w, msg = r.opt.Dialect.number(cell)
-			if msg == "" && row.w < 0 {
+			switch {
+			case msg == "" && row.w < 0:
 				msg = "weight " + quoteCell(cell) + " is negative (weights must be zero or more; a row of weight 0 is dropped)"
-			} else if strings.HasSuffix(msg, " is not a number") {
+			case msg == "" && !weightInRange(row.w):
+				msg = fmt.Sprintf("weight %s is larger than 1e15: a weight counts the observations a row stands for (or their share of a population), and sums of such weights lose the digits of the likelihood and its errors; check the column, or divide it by a power of ten", quoteCell(cell))
+			case strings.HasSuffix(msg, " is not a number"):
 				msg += r.missingWordHint(c.name, cell)
 			}
 		case roleOffset:
-			if row.off, msg = r.opt.Dialect.number(cell); strings.HasSuffix(msg, " is not a number") {
+			row.off, msg = r.opt.Dialect.number(cell)
+			switch {
+			case msg == "" && !offsetInRange(row.off):
+				msg = fmt.Sprintf("offset %s is beyond ±1e8: an offset is added to the linear predictor as it is (its coefficient is 1), where a probability is already 0 or 1 from about ±40 on, and such a value leaves the model's own terms no digits; give the offset on the scale of the linear predictor (the log of an exposure, not the exposure)", quoteCell(cell))
+			case strings.HasSuffix(msg, " is not a number"):
 				msg += r.missingWordHint(c.name, cell)
 			}
 		case roleCluster:
@@ -466,6 +473,24 @@ func (r *reader) missingWordHint(col, cell string) string {
 
 // intern returns one copy of a cluster id for all rows that have it, so
 // that kept ids do not hold on to the text they were read from.
+// The largest weight and the largest offset in absolute value that are
+// read (weightInRange, offsetInRange), as predictors have their range
+// (fit: values beyond 1e100 are refused): a frequency weight of 1e15
+// already stands for more observations than any study has, and an offset
+// of 1e8 leaves the linear predictor about 1e-8 of resolution.
+const (
+	maxWeight = 1e15
+	maxOffset = 1e8
+)
+
+// weightInRange reports whether a weight is one that is read: from 0 to
+// maxWeight.
+func weightInRange(w float64) bool { return w >= 0 && w <= maxWeight }
+
+// offsetInRange reports whether an offset is one that is read: within
+// maxOffset of 0.
+func offsetInRange(x float64) bool { return x >= -maxOffset && x <= maxOffset }
+
 // ClusterID is the id under which a cluster cell is counted: a cell
 // written as a decimal number (in the file's decimal mark) is that
 // number's shortest text, so that 7, 7.0, 07 and +7 are one cluster (as
