@@ -394,6 +394,17 @@ func termItems(dir string) []badInput {
 					t.Errorf("|scale=sd, the plan's word: exit %d\n%s", code, e)
 				}
 			}},
+		{id: "T36", name: "a number written with a Unicode minus sign (U+2212)", code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				writeTermsData(t, dir, id)
+				b, err := os.ReadFile(filepath.Join(dir, "cat.csv"))
+				if err != nil {
+					t.Fatal(err)
+				}
+				os.WriteFile(filepath.Join(dir, "minus.csv"), []byte(strings.Replace(string(b), ",-0.5", ",\u22120.5", 1)), 0o644)
+			},
+			args: fitArgs(filepath.Join(dir, "minus.csv"), "--predictors", "x"),
+			want: []string{`minus.csv:7: column "x": value "` + "\u2212" + `0.500" is not a number; it holds the character U+2212 (MINUS SIGN) where a number has the ASCII hyphen-minus "-": write it -0.500 (a word processor or a typeset table may have replaced the sign)` + "\n"}},
 		{id: "W23", name: "a profile outside the population fitted: failing a subset condition, beyond the data (warned, flagged beside its tables)", args: []string{"run"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: x, at_least: 0}\npredictors:", "rules:", "inference: {marginal_effects: [profile], profile: {x: -0.25}, level_pairs: {predictors: [site]}}\nrules:"), code: 0,
 			want: []string{"y: chosen: cumulative/parallel/logit"},

@@ -367,7 +367,7 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 			case msg == "" && !weightInRange(row.w):
 				msg = fmt.Sprintf("weight %s is larger than 1e15: a weight counts the observations a row stands for (or their share of a population), and sums of such weights lose the digits of the likelihood and its errors; check the column, or divide it by a power of ten", quoteCell(cell))
 			case strings.HasSuffix(msg, " is not a number"):
-				msg += r.missingWordHint(c.name, cell)
+				msg += lookalikeHint(cell, r.opt.Dialect) + r.missingWordHint(c.name, cell)
 			}
 		case roleOffset:
 			row.off, msg = r.opt.Dialect.number(cell)
@@ -375,7 +375,7 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 			case msg == "" && !offsetInRange(row.off):
 				msg = fmt.Sprintf("offset %s is beyond ±1e8: an offset is added to the linear predictor as it is (its coefficient is 1), where a probability is already 0 or 1 from about ±40 on, and such a value leaves the model's own terms no digits; give the offset on the scale of the linear predictor (the log of an exposure, not the exposure)", quoteCell(cell))
 			case strings.HasSuffix(msg, " is not a number"):
-				msg += r.missingWordHint(c.name, cell)
+				msg += lookalikeHint(cell, r.opt.Dialect) + r.missingWordHint(c.name, cell)
 			}
 		case roleCluster:
 			row.cl = cell
@@ -398,6 +398,8 @@ func (r *reader) notNumberHint(col, cell, msg, ref string) string {
 		return ""
 	}
 	switch {
+	case lookalikeHint(cell, r.opt.Dialect) != "":
+		return lookalikeHint(cell, r.opt.Dialect)
 	case timeHint(cell) != "":
 		return timeHint(cell)
 	case r.missingWordHint(col, cell) != "":
@@ -410,6 +412,38 @@ func (r *reader) notNumberHint(col, cell, msg, ref string) string {
 		return formulaHint(cell, ref)
 	}
 	return "; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)"
+}
+
+// lookalikes are characters that look like the minus sign a number is
+// written with, the ASCII hyphen-minus, and are not it (a word processor's
+// or a typeset table's minus and dashes).
+var lookalikes = map[rune]string{
+	'\u2212': "MINUS SIGN", '\u2012': "FIGURE DASH", '\u2013': "EN DASH", '\u2014': "EM DASH",
+	'\u2010': "HYPHEN", '\u2011': "NON-BREAKING HYPHEN", '\ufe63': "SMALL HYPHEN-MINUS", '\uff0d': "FULLWIDTH HYPHEN-MINUS",
+}
+
+// lookalikeHint says, of a cell that is not a number but would be one
+// with the ASCII hyphen-minus in place of a character that looks like it
+// (−1.5 written with U+2212), which character it holds and what to write;
+// "" otherwise.
+func lookalikeHint(cell string, d Dialect) string {
+	var found []string
+	fixed := strings.Map(func(c rune) rune {
+		if name, ok := lookalikes[c]; ok {
+			if q := fmt.Sprintf("U+%04X (%s)", c, name); !slices.Contains(found, q) {
+				found = append(found, q)
+			}
+			return '-'
+		}
+		return c
+	}, cell)
+	if len(found) == 0 {
+		return ""
+	}
+	if _, msg := d.number(fixed); msg != "" {
+		return ""
+	}
+	return fmt.Sprintf("; it holds the character %s where a number has the ASCII hyphen-minus \"-\": write it %s (a word processor or a typeset table may have replaced the sign)", strings.Join(found, " and "), fixed)
 }
 
 // outcomeHint is what follows the message for an outcome cell of column

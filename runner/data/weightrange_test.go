@@ -43,3 +43,26 @@ func TestWeightOffsetRange(t *testing.T) {
 		}
 	}
 }
+
+// A number written with a character that looks like the minus sign (U+2212
+// MINUS SIGN, an en dash) is named with the character and the number to
+// write, in a predictor, a weight or an offset; text that would not be a
+// number with it replaced keeps the advice for text.
+func TestLookalikeMinus(t *testing.T) {
+	for _, c := range []struct{ cell, role, want string }{
+		{"\u22121.5", "a", `value "` + "\u2212" + `1.5" is not a number; it holds the character U+2212 (MINUS SIGN) where a number has the ASCII hyphen-minus "-": write it -1.5`},
+		{"\u20133e-2", "a", `it holds the character U+2013 (EN DASH) where a number has the ASCII hyphen-minus "-": write it -3e-2`},
+		{"\u22120.5", "o", `it holds the character U+2212 (MINUS SIGN) where a number has the ASCII hyphen-minus "-": write it -0.5`},
+		{"\u2212x", "a", `the column holds text`},
+	} {
+		raw := "y,a,o\n1,0.5,0\n2," + map[bool]string{true: c.cell + ",0", false: "0.2," + c.cell}[c.role == "a"] + "\n3,0.1,0\n"
+		opt := Options{Outcome: "y", Predictors: []string{"a"}, MissingTokens: []string{""}}
+		if c.role == "o" {
+			opt.Offset = "o"
+		}
+		_, err := readBytes([]byte(raw), "d.csv", opt)
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%q: %v, want %q", c.cell, err, c.want)
+		}
+	}
+}
