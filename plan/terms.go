@@ -9,6 +9,7 @@ import (
 
 	"ordplan/runner/data"
 	"ordplan/runner/design"
+	"ordplan/runner/fit"
 )
 
 // CategoricalColumn is one entry of the `categorical` section: a column
@@ -259,6 +260,15 @@ func (d *decoder) checkTerms(p *Plan, terms []design.TermSpec, listKey string) {
 		plain := len(t.Interact) == 0 && t.Transform.Empty() && p.categorical(t.Source) == nil
 		if bad := design.BadNameChars(t.Name); bad != "" && !plain && d.clean(t.Key) {
 			d.errAt(t.Key, "term name %s contains %s, which cannot be part of a column name (names are used in hypotheses and in the command line's group syntax); give the term a name with name:", quote(t.Name), bad)
+		}
+		// A numeric term of one column is that column's name, which the
+		// models must not give another parameter: refused here without the
+		// data (a registered plan could not run), and for every design
+		// column where the design is built.
+		if len(t.Interact) == 0 && p.categorical(t.Source) == nil && t.Transform.Poly == 0 && !t.Transform.Spline() && d.clean(t.Key) {
+			if why := fit.ReservedName(t.Name); why != "" {
+				d.errAt(t.Key, "term name %s cannot be used: %s; give the term another name: {name: NAME, column: %s}", quote(t.Name), why, t.Source)
+			}
 		}
 		if len(t.Interact) > 0 {
 			for _, c := range t.Interact {

@@ -354,9 +354,22 @@ func termItems(dir string) []badInput {
 			}},
 		{id: "T34", name: "a term named as a parameter of the models (tau, tau[1], b[1] beside a nonparallel b)", args: []string{"check"}, setup: writeTermsData,
 			plan: termsEdit("[site, x]", "[site, {name: tau, column: x}]", "[parallel]", "[parallel, nonparallel]"), code: 1,
-			want: []string{`T34.yaml:6:20: predictors[1]: design column "tau" cannot be made: "tau" is the name of the thresholds (tau[1], tau[2], ...): the column's nonparallel slopes would have their names; give the term another name (data cat.csv, outcome "y")` + "\n"},
+			want: []string{`T34.yaml:6:20: predictors[1]: term name "tau" cannot be used: "tau" is the name of the thresholds (tau[1], tau[2], ...): the column's nonparallel slopes would have their names; give the term another name: {name: NAME, column: x}` + "\n"},
 			check: func(t *testing.T, dir, out, errs string) {
 				cat := filepath.Join(dir, "cat.csv")
+				// Without the data too: a registered plan must be able to run.
+				if _, e, code := runCLI("check", "--no-data", filepath.Join(dir, "T34.yaml")); code != 1 || !strings.Contains(e, `predictors[1]: term name "tau" cannot be used`) {
+					t.Errorf("check --no-data: exit %d\n%s", code, e)
+				}
+				// A categorical column phi makes the columns phi.LEVEL, the names of
+				// the common factors of a group LEVEL: refused where the design is built.
+				phi := strings.Replace(strings.Replace(termsPlan, "site: {levels", "phi: {levels", 1), "[site, x]", "[phi, x]", 1)
+				os.WriteFile(filepath.Join(dir, "T34phi.yaml"), []byte(strings.Replace(phi, "cat.csv", "phi.csv", 1)), 0o644)
+				b, _ := os.ReadFile(cat)
+				os.WriteFile(filepath.Join(dir, "phi.csv"), []byte(strings.Replace(string(b), "y,site,x", "y,phi,x", 1)), 0o644)
+				if _, e, code := runCLI("check", filepath.Join(dir, "T34phi.yaml")); code != 1 || !strings.Contains(e, `predictors[0]: design column "phi.east" cannot be made: "phi.east" is the name of the common factors of constrained models (phi.east[2], phi.east[3], ...)`) {
+					t.Errorf("a categorical column phi: exit %d\n%s", code, e)
+				}
 				for _, c := range []struct{ preds, want string }{
 					{"x|as=tau,site|levels=north/east/south", `--predictors item 1: design column "tau" cannot be made: "tau" is the name of the thresholds`},
 					{"x|as=tau[1]", `--predictors item 1: design column "tau[1]" cannot be made: "tau[1]" has the form NAME[m] of the models' per-boundary parameters`},
