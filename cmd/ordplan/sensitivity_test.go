@@ -217,3 +217,18 @@ func TestSensitivityAnalysesAsSeparatePlans(t *testing.T) {
 		t.Errorf("run.json's sensitivity: %v %+v", err, rec.Sensitivity)
 	}
 }
+
+// The sensitivity analyses of a run through the queue are fitted by the
+// workers as the primary analysis's are, with the local run's outputs
+// byte for byte (imputed sets of an analysis included).
+func TestSensitivityThroughQueue(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts worker processes")
+	}
+	dir := t.TempDir()
+	sensitivityData(t, dir)
+	plan := writeIn(t, dir, "main.yaml", sensitivityPlan+sensitivitySection)
+	local, remote, r := runHereAndQueued(t, plan, 2)
+	t.Logf("through the queue:\n%s", r[1])
+	sameOutputs(t, local, remote)
+}
