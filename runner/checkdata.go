@@ -194,6 +194,9 @@ func NotCheckedWithoutData(p *plan.Plan) []string {
 			break
 		}
 	}
+	if len(p.Sensitivity) > 0 {
+		out = append(out, "sensitivity: each analysis, the plan with its changes, against the data as the plan is (the rows its subset keeps, its levels and design, its clusters)")
+	}
 	slices.Sort(out)
 	return out
 }

@@ -35,7 +35,8 @@ func TestCheckNoDataSaysWhatItLeftOut(t *testing.T) {
 	full := strings.Replace(goodPlan, "  file: d.csv\n", "  file: clu.csv\n  weights: c\n  cluster: two\n", 1)
 	full = strings.Replace(full, "predictors: [a, b]", "categorical:\n  b: {levels: [\"0\", \"1\"], unobserved: drop}\npredictors: [a, b, {column: d, spline: {knots: [-1, 0, 40]}}, {column: big, spline: {quantiles: [0.1, 0.5, 0.9]}}]", 1)
 	full = strings.Replace(full, "reject_unconverged: true", "reject_if_simpler_is_close: {max_difference: 0.05, grid: {b: [\"1\"]}}", 1)
-	full += "covariance: clustered\nsubset:\n  - {column: a, at_least: -5}\ndictionary:\n  a: {range: [-10, 10]}\n  b: {label: B}\n  d: {label: D}\n  big: {label: Big}\n  c: {label: weight}\n  two: {label: cluster}\ninference:\n  hypotheses: [\"a = 0\"]\n  predict: new.csv\n  marginal_effects: [profile]\n  profile: {a: 1}\n"
+	full += "covariance: clustered\nsubset:\n  - {column: a, at_least: -5}\ndictionary:\n  a: {range: [-10, 10]}\n  b: {label: B}\n  d: {label: D}\n  big: {label: Big}\n  c: {label: weight}\n  two: {label: cluster}\ninference:\n  hypotheses: [\"a = 0\"]\n  predict: new.csv\n  marginal_effects: [profile]\n  profile: {a: 1}\n" +
+		"sensitivity:\n  - name: probit\n    why: w\n    change: {models.links: [probit]}\n"
 	fp := filepath.Join(dir, "full.yaml")
 	os.WriteFile(fp, []byte(full), 0o644)
 	out, errs, code = runCLI("check", "--no-data", fp)
@@ -62,6 +63,7 @@ func TestCheckNoDataSaysWhatItLeftOut(t *testing.T) {
 		"predictors: spline knots at quantiles that tie in the rows used",
 		"predictors: spline knots given as values against the range of the rows used",
 		"rules: the levels a closeness rule's grid lists that no row used has (unobserved: drop)",
+		"sensitivity: each analysis, the plan with its changes, against the data as the plan is (the rows its subset keeps, its levels and design, its clusters)",
 		"subset: the values its conditions name against those the rows hold, and the rows it keeps",
 	}
 	if len(got) != len(wantItems) {
