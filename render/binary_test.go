@@ -66,6 +66,7 @@ rules:
 	// them; the odds ratios have one boundary, no "other boundaries".
 	hasAll(t, "methods", methods,
 		"was analysed with binary regression models (with two ordered categories the plan's ordinal models reduce to them)",
+		"With two categories rule (2) had no restriction to test (the models it compares are the same model) and rejected none.",
 		"were binary regressions of yes against no with each of the logit and cloglog links: with two categories the outcome has a single category boundary, so the plan's cumulative, stage and adjacent comparisons with parallel and nonparallel effects are all that one model, fitted 6 times under each link, and the candidates differ only in their link.")
 	for _, bad := range []string{"ordinal regression models", "cumulative logits", "cumulative probabilities", "continuation-ratio", "adjacent-category", "McCullagh", "Fienberg", "Agresti", "interaction"} {
 		if strings.Contains(methods, bad) {
@@ -118,7 +119,12 @@ rules:
 			t.Errorf("methods hold %q:\n%s", bad, methods)
 		}
 	}
-	// The odds ratios of the chosen logit model have one boundary.
+	// The odds ratios of the chosen logit model have one boundary, named
+	// in their table, and the tests of each term do not speak of every
+	// boundary.
+	if !strings.Contains(md, "| x | per unit of x | no/yes |") || strings.Contains(md, "are 0 at every boundary") {
+		t.Errorf("odds ratios table or term tests of one boundary:\n%s", md)
+	}
 	if strings.Contains(md, "likewise at the other boundaries") || !strings.Contains(md, "the factor by which it multiplies the odds of yes against no (with two categories, one boundary, the cumulative odds ratio is this plain odds ratio); above 1 the outcome moves towards yes.") {
 		t.Errorf("odds ratios of one boundary:\n%s", md)
 	}

@@ -120,6 +120,9 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	var rows [][]string
 	for _, o := range tab.Rows {
 		at := "every boundary"
+		if len(res.Categories) == 2 {
+			at = res.Categories[0] + "/" + res.Categories[1] // the one boundary
+		}
 		if o.Boundary > 0 {
 			at = fmt.Sprintf("%d (%s/%s)", o.Boundary, res.Categories[o.Boundary-1], res.Categories[o.Boundary])
 		}

@@ -190,6 +190,9 @@ func writeMethods(d *doc, r *runner.Result) {
 		if len(rules) > 0 {
 			s = append(s, "The plan's decision rules were applied in order: "+strings.Join(rules, "; ")+".")
 		}
+		if binary(or) {
+			s = append(s, binaryTestRulesMethods(or)...)
+		}
 		if or.Chosen != nil && or.Fallback {
 			s = append(s, fmt.Sprintf("Every candidate was rejected by the rules, so the model reported is %s, the fallback the plan named for that case.", or.Chosen.ID))
 		} else if or.Chosen != nil {
@@ -711,6 +714,20 @@ func termTestsMethods(r *runner.Result, or *runner.OutcomeResult, inf plan.Infer
 	}
 	s = append(s, fmt.Sprintf("These tests assume the chosen model holds and refer their statistics to large-sample distributions: the Wald and likelihood-ratio statistics can differ in small samples, in large samples they reject for effects too small to matter, and %s; their p-values were not corrected for the number of terms tested.", cause))
 	return strings.Join(s, " ")
+}
+
+// binaryTestRulesMethods says, for a two-category outcome, that each rule
+// testing a model against a less constrained one had nothing to test (one
+// boundary: the models are the same) and rejected no model.
+func binaryTestRulesMethods(or *runner.OutcomeResult) []string {
+	var s []string
+	for i, ro := range or.Rules {
+		if ro.Rule.Kind != plan.RuleRejectIfTestRejects || slices.ContainsFunc(ro.Verdicts, func(v runner.Verdict) bool { return !v.Kept }) {
+			continue
+		}
+		s = append(s, fmt.Sprintf("With two categories rule (%d) had no restriction to test (the models it compares are the same model) and rejected none.", i+1))
+	}
+	return s
 }
 
 // gridWords names the plan's comparisons and effect structures of an

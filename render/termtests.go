@@ -24,7 +24,7 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		return
 	}
 	d.h(4, "Tests of each term")
-	d.p("Is each term associated with the outcome at all, given the other terms? For each term two tests of the hypothesis that all its slopes in the chosen model, %s, are 0 at every boundary: the Wald test, from the estimates and the model's standard errors, and the likelihood-ratio test, which compares the chosen model with the same model (comparison, link, effect structure of every other column) fitted without the term on the same rows. A term inside an interaction is tested together with every interaction containing it (column Tested with): its own slopes alone would measure its effect only where the other terms of the interaction are 0, which depends on their coding and centring; the interaction itself is tested alone. A constrained column that is the only column of its constraint group is tested by its effects at every boundary (the group's common factor goes with it). Each constraint group of several columns is also tested as a whole (its columns, named in column Tested with), unless a term's test already drops exactly its columns.", or.Chosen.ID)
+	d.p("Is each term associated with the outcome at all, given the other terms? For each term two tests of the hypothesis that all its slopes in the chosen model, %s, are 0%s: the Wald test, from the estimates and the model's standard errors, and the likelihood-ratio test, which compares the chosen model with the same model (comparison, link, effect structure of every other column) fitted without the term on the same rows. A term inside an interaction is tested together with every interaction containing it (column Tested with): its own slopes alone would measure its effect only where the other terms of the interaction are 0, which depends on their coding and centring; the interaction itself is tested alone. A constrained column that is the only column of its constraint group is tested by its effects at every boundary (the group's common factor goes with it). Each constraint group of several columns is also tested as a whole (its columns, named in column Tested with), unless a term's test already drops exactly its columns.", or.Chosen.ID, everyBoundary(or))
 	wald, lr := inf.WantsTermWald(), inf.WantsTermLR()
 	switch {
 	case !lr:
@@ -141,4 +141,13 @@ func termTestRows(or *runner.OutcomeResult) [][]string {
 		}
 	}
 	return rows
+}
+
+// everyBoundary is " at every boundary" for an outcome of more than two
+// categories; nothing for two (one boundary).
+func everyBoundary(or *runner.OutcomeResult) string {
+	if binary(or) {
+		return ""
+	}
+	return " at every boundary"
 }
