@@ -97,7 +97,7 @@ func Write(in Input) ([]byte, error) {
 	if err != nil {
 		return nil, err
 	}
-	var preds, skipped, weighty, clustery []string
+	var preds, skipped, constant, weighty, clustery []string
 	var cats []int // text columns used as categorical predictors
 	for i, c := range in.Columns {
 		if i == outcome {
@@ -108,6 +108,10 @@ func Write(in Input) ([]byte, error) {
 			weighty = append(weighty, c.Name)
 		case kinds[i].Word == "cluster?":
 			clustery = append(clustery, c.Name)
+		case kinds[i].Word == "numeric" && in.HaveData && constantValue(c) != "":
+			// A range needs its minimum below its maximum, and a
+			// predictor that does not vary has no effect to estimate.
+			constant = append(constant, fmt.Sprintf("%s (every value %s)", c.Name, constantValue(c)))
 		case kinds[i].Word == "numeric" || kinds[i].Word == "binary" || kinds[i].Word == "ordered?" || kinds[i].Word == "unknown":
 			preds = append(preds, c.Name)
 		case kinds[i].Word == "categorical" && !c.Many && c.Distinct >= 2 && c.Distinct <= 12 && 2*c.Distinct <= c.Rows-c.Missing:
@@ -242,6 +246,9 @@ func Write(in Input) ([]byte, error) {
 	}
 	if len(skipped) > 0 {
 		w("# Not listed: %s (empty columns, row numbers or identifiers, or text with too many values for a categorical predictor).", strings.Join(skipped, ", "))
+	}
+	if len(constant) > 0 {
+		w("# Not listed, the same number in every row of the file: %s (a predictor that does not vary has no effect to estimate).", strings.Join(constant, ", "))
 	}
 	w("")
 	if len(preds) > 0 {
@@ -396,6 +403,23 @@ func lowCodes(c data.Profile) bool {
 // (99, 999, ...) far above its other values (data.Profile.TopCodes).
 func topCodes(c data.Profile) bool {
 	return len(c.TopCodes) > 0 && !math.IsInf(c.MaxOther, -1) && c.MaxOther >= c.MinOther
+}
+
+// constantValue is the one value of a numeric column that holds no other
+// (besides what look like missing-value codes), as written in a plan; ""
+// when it varies or holds no value.
+func constantValue(c data.Profile) string {
+	lo, hi := c.Min, c.Max
+	if lowCodes(c) {
+		lo = c.MinOther
+	}
+	if topCodes(c) {
+		hi = c.MaxOther
+	}
+	if c.Rows-c.Missing <= 0 || math.IsInf(lo, 0) || math.IsNaN(lo) || lo != hi {
+		return ""
+	}
+	return num(lo)
 }
 
 // codeLike says that n codes look like missing-value codes.
