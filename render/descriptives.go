@@ -123,7 +123,18 @@ func writeDescriptives(d *doc, or *runner.OutcomeResult, sampling bool) {
 		default:
 			weighted = " Counts, means and SDs are weighted by the frequency weights."
 		}
-		d.p("Each predictor in each outcome category: mean (SD) for a numeric predictor; for a 0/1 predictor and for each level of a categorical one, the number of observations with 1 (with that level) and their share of the category.%s", weighted)
+		total := categoryTotals(describedData(or))
+		partly := false // some predictor is missing in rows of some category
+		for _, s := range ds {
+			for c := range s.N {
+				partly = partly || s.N[c] != total[c]
+			}
+		}
+		counted := ""
+		if partly {
+			counted = " A predictor is summarized over the rows where it is observed: where it is missing in some rows of a category, the cell names the rows it counts, \"k of n (share)\" for a count (n the rows with the predictor observed, the share's denominator) and \"mean (SD), n rows\" for a mean."
+		}
+		d.p("Each predictor in each outcome category: mean (SD) for a numeric predictor; for a 0/1 predictor and for each level of a categorical one, the number of observations with 1 (with that level) and their share of the category's observations.%s%s", counted, weighted)
 		head := []string{"Predictor"}
 		for _, l := range lv {
 			head = append(head, l)
@@ -133,9 +144,15 @@ func writeDescriptives(d *doc, or *runner.OutcomeResult, sampling bool) {
 		for _, s := range ds {
 			row := []string{s.Label}
 			for c := range s.N {
-				if s.Counts {
+				missing := s.N[c] != total[c]
+				switch {
+				case s.Counts && missing:
+					row = append(row, fmt.Sprintf("%s of %s (%s%%)", numfmt.Num(s.Ones[c]), numfmt.Num(s.N[c]), numfmt.Fixed(100*s.Mean[c], 1)))
+				case s.Counts:
 					row = append(row, fmt.Sprintf("%s (%s%%)", numfmt.Num(s.Ones[c]), numfmt.Fixed(100*s.Mean[c], 1)))
-				} else {
+				case missing:
+					row = append(row, fmt.Sprintf("%s (%s), %s rows", numfmt.Fixed(s.Mean[c], 3), numfmt.Fixed(s.SD[c], 3), numfmt.Num(s.N[c])))
+				default:
 					row = append(row, fmt.Sprintf("%s (%s)", numfmt.Fixed(s.Mean[c], 3), numfmt.Fixed(s.SD[c], 3)))
 				}
 			}
@@ -144,6 +161,26 @@ func writeDescriptives(d *doc, or *runner.OutcomeResult, sampling bool) {
 		d.captioned("Predictors by outcome category").table(head, rows)
 	}
 	writeMissing(d, or)
+}
+
+// categoryTotals are the observations (sum of weights, as describe weighs
+// them) of each outcome category of ds, then of all: the rows a
+// predictor observed in every row is summarized over.
+func categoryTotals(ds *data.Dataset) []float64 {
+	J := len(ds.Categories)
+	out := make([]float64, J+1)
+	for i, y := range ds.Y {
+		w := 1.0
+		if ds.Weights != nil {
+			w = ds.Weights[i]
+		}
+		if w == 0 || y < 0 {
+			continue
+		}
+		out[y] += w
+		out[J] += w
+	}
+	return out
 }
 
 // describedData is the data the descriptive tables summarize: on imputed

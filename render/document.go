@@ -230,8 +230,9 @@ func mdCode(s string) string {
 
 // numberCell matches a cell that reads as a number: a sign, digits, a
 // decimal point, an exponent, a percent sign, "<" before a small p-value,
-// a value in brackets after it, or a range of two numbers.
-var numberCell = regexp.MustCompile(`^(<|−|-)?[0-9][0-9,]*(\.[0-9]+)?(e[-+]?[0-9]+)?%?( \((-|−)?[0-9.]+(e[-+]?[0-9]+)?%?\))?(–-?[0-9.]+)?$`)
+// a value in brackets after it, or a range of two numbers; a count "k of
+// n" and a mean's ", n rows" (the predictors by outcome category).
+var numberCell = regexp.MustCompile(`^(<|−|-)?[0-9][0-9,]*(\.[0-9]+)?(e[-+]?[0-9]+)?%?( of [0-9][0-9,.]*)?( \((-|−)?[0-9.]+(e[-+]?[0-9]+)?%?\))?(, [0-9][0-9,.]* rows)?(–-?[0-9.]+)?$`)
 
 // numericColumn reports whether every non-empty cell of column i is a
 // number (placeholders such as "—" and "n/a" allowed) and one at least is.

@@ -403,3 +403,83 @@ rules:
 		t.Errorf("%d odds ratios, want 2", len(ors))
 	}
 }
+
+// TestDescriptivesNameTheirRows: on imputed data the predictors by outcome
+// category describe the original file's observed values, each predictor
+// over the rows where it is observed; where a predictor is missing in
+// some rows the cell says which rows it counts ("k of n", ", n rows"),
+// so that its share's denominator is stated. Counts by hand from the
+// invented file.
+func TestDescriptivesNameTheirRows(t *testing.T) {
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(5, 27))
+	var orig, stacked strings.Builder
+	orig.WriteString("y,s,x\n")
+	stacked.WriteString("imp,y,s,x\n")
+	type row struct {
+		y, s   int
+		x      float64
+		ms, mx bool
+	}
+	rows := make([]row, 200)
+	ones, of, xs := map[int]int{}, map[int]int{}, map[int]int{}
+	for i := range rows {
+		s, x := rng.IntN(2), rng.NormFloat64()
+		y := min(2, max(0, int(1+0.8*x+0.6*float64(s)+rng.NormFloat64())))
+		r := row{y, s, x, rng.Float64() < 0.2, rng.Float64() < 0.15}
+		rows[i] = r
+		ss, sx := strconv.Itoa(s), strconv.FormatFloat(x, 'f', 4, 64)
+		if r.ms {
+			ss = ""
+		} else {
+			of[y]++
+			ones[y] += s
+		}
+		if r.mx {
+			sx = ""
+		} else {
+			xs[y]++
+		}
+		orig.WriteString(strconv.Itoa(y) + "," + ss + "," + sx + "\n")
+	}
+	for k := 1; k <= 2; k++ {
+		for _, r := range rows {
+			s, x := r.s, r.x
+			if r.ms {
+				s = rng.IntN(2)
+			}
+			if r.mx {
+				x = rng.NormFloat64()
+			}
+			stacked.WriteString(strconv.Itoa(k) + "," + strconv.Itoa(r.y) + "," + strconv.Itoa(s) + "," + strconv.FormatFloat(x, 'f', 4, 64) + "\n")
+		}
+	}
+	os.WriteFile(filepath.Join(dir, "orig.csv"), []byte(orig.String()), 0o644)
+	os.WriteFile(filepath.Join(dir, "stacked.csv"), []byte(stacked.String()), 0o644)
+	files := renderSource(t, dir, `version: 1
+title: descriptives
+data: {file: orig.csv, imputed: {file: stacked.csv, column: imp}}
+outcomes: [{column: y}]
+predictors: [s, x]
+models: {approaches: [cumulative], effects: [parallel]}
+rules:
+  - choose: {by: bic}
+`, 2)
+	md := string(files["report.md"])
+	hasAll(t, "report.md", md, `the cell names the rows it counts, "k of n (share)" for a count`)
+	sRow := "| s |"
+	xRow := "| x |"
+	for c := 0; c < 3; c++ {
+		sRow += " " + strconv.Itoa(ones[c]) + " of " + strconv.Itoa(of[c]) + " (" + strconv.FormatFloat(100*float64(ones[c])/float64(of[c]), 'f', 1, 64) + "%) |"
+		xRow += ".*, " + strconv.Itoa(xs[c]) + " rows |"
+	}
+	if !strings.Contains(md, sRow) {
+		t.Errorf("report.md lacks the row %q", sRow)
+	}
+	if !regexp.MustCompile(regexp.QuoteMeta("| x |") + strings.TrimPrefix(xRow, "| x |")).MatchString(md) {
+		t.Errorf("report.md's row of x does not name its rows %v", xs)
+	}
+	if !strings.Contains(md, "|---|---:|---:|---:|---:|") {
+		t.Error("the predictors by outcome category are no longer right-aligned")
+	}
+}

@@ -88,7 +88,7 @@ func writeData(d *doc, or *runner.OutcomeResult, sampling bool, cluster string, 
 				total += w
 			}
 		}
-		d.p("The counts below, and the predictors by outcome category, describe the observed values of the original data %s (%s observations with the outcome observed, %s with it missing), not an imputed set; shares are of the observed outcomes.",
+		d.p("The counts below, and the predictors by outcome category, describe the observed values of the original data %s (%s observations with the outcome observed, %s with it missing), not an imputed set; the outcome's shares are of the observed outcomes, and each predictor is summarized over the rows where it is observed too.",
 			mdCode(ob.File), numfmt.Count(total), numfmt.Count(missing))
 		for j, l := range ob.Categories {
 			share := "0.0%"
