@@ -141,9 +141,9 @@ func TestImputedReport(t *testing.T) {
 	hasAll(t, "report.md", md,
 		"### Average marginal effects",
 		"### Marginal effects at the means",
-		"computed on each of the 4 imputed sets (with that set's fit, and for averages and means that set's rows) and pooled by Rubin's rules",
+		"computed on each of the 4 imputed sets (with that set's fit, and for averages that set's rows) and pooled by Rubin's rules",
 		"| Predictor | Change | Category | Effect | Std. error | t | p | 95% low | 95% high | df | FMI |",
-		"The point shown is the mean of the sets' points",
+		"The point is the same in every set: each numeric predictor the plan's profile does not set is at its mean over the rows of all imputed sets.",
 		"### Predictions for new rows",
 		"each number was predicted on each of the 4 imputed sets by that set's fit and pooled by Rubin's rules",
 		"marginal effects and its predictions for new rows are computed on each imputed set",
@@ -481,5 +481,39 @@ rules:
 	}
 	if !strings.Contains(md, "|---|---:|---:|---:|---:|") {
 		t.Error("the predictors by outcome category are no longer right-aligned")
+	}
+}
+
+// TestPoolingTableLambda: the table of the pooling shows lambda = (1 +
+// 1/m) B/T beside FMI, FMI = lambda (df + 1)/(df + 3) + 2/(df + 3) in each
+// row (to the rounding of the display; the values themselves are checked
+// against mitml by TestPooledClusteredAgainstMitml and against mice by
+// TestAgainstMiceNhanes), and the guidance compares lambda, not FMI, with
+// the share of incomplete rows.
+func TestPoolingTableLambda(t *testing.T) {
+	md := string(runImputed(t)["report.md"])
+	hasAll(t, "report.md", md, "| Parameter | Estimate | Within SD | Between SD | SE | df | RIV | λ | FMI |",
+		"A λ well above the share of incomplete rows", "so it is not compared with the share of missing values")
+	if strings.Contains(md, "A fraction of missing information well above") {
+		t.Error("the guidance still compares FMI with the share of incomplete rows")
+	}
+	tab := md[strings.Index(md, "| Parameter | Estimate | Within SD"):]
+	tab = tab[:strings.Index(tab, "\n\n")]
+	rows := 0
+	for _, line := range strings.Split(tab, "\n")[2:] {
+		c := strings.Split(strings.Trim(line, "| "), " | ")
+		df, err := strconv.ParseFloat(c[5], 64)
+		if err != nil {
+			continue // inf
+		}
+		lambda, _ := strconv.ParseFloat(c[7], 64)
+		fmi, _ := strconv.ParseFloat(c[8], 64)
+		if want := lambda*(df+1)/(df+3) + 2/(df+3); math.Abs(fmi-want) > 2e-3 {
+			t.Errorf("FMI %g, from lambda and df %g: %s", fmi, want, line)
+		}
+		rows++
+	}
+	if rows == 0 {
+		t.Fatalf("no row of finite df in\n%s", tab)
 	}
 }

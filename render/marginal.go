@@ -59,7 +59,7 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			d.p("%s", tNote(or.Chosen.Result, "effect"))
 		}
 		if set.Pooling != nil {
-			d.p("On imputed data these effects were computed on each of the %d imputed sets (with that set's fit, and for averages and means that set's rows) and pooled by Rubin's rules: the effect is the mean over the sets, its standard error the square root of the mean squared delta-method error plus (1 + 1/%d) times the variance between the sets; p-values and intervals use t on the Barnard-Rubin degrees of freedom (df; inf when the sets agree)%s, and FMI is the fraction of missing information.%s",
+			d.p("On imputed data these effects were computed on each of the %d imputed sets (with that set's fit, and for averages that set's rows) and pooled by Rubin's rules: the effect is the mean over the sets, its standard error the square root of the mean squared delta-method error plus (1 + 1/%d) times the variance between the sets; p-values and intervals use t on the Barnard-Rubin degrees of freedom (df; inf when the sets agree)%s, and FMI is the fraction of missing information.%s",
 				or.Imputed.M, or.Imputed.M, pooledClusterDF(or.Chosen.Result), pooledPoint(set))
 			head[5] = "t"
 			head = append(head, "df", "FMI")
@@ -149,7 +149,7 @@ func pooledPoint(set runner.MarginalSet) string {
 	if set.Point == nil {
 		return ""
 	}
-	return " The point shown is the mean of the sets' points: each set's effects are at that set's own means."
+	return " The point is the same in every set: each numeric predictor the plan's profile does not set is at its mean over the rows of all imputed sets."
 }
 
 // profileOutsideNote warns, beside the tables at the plan's profile,

@@ -52,11 +52,13 @@ func TestPooledClusteredAgainstMitml(t *testing.T) {
 	for j, name := range []string{"x", "gb", "gc"} {
 		i := j + 1
 		inf := res.ParamInference(i, 0.95)
-		w := want.Get(t, name) // estimate, se, t, df, p
+		w := want.Get(t, name) // estimate, se, t, df, p, RIV, FMI, lambda
+		pl := or.Chosen.Pooled
 		for _, c := range []struct {
 			what      string
 			got, want float64
-		}{{"estimate", res.Estimates[i], w[0]}, {"std. error", res.StdErrors[i], w[1]}, {"t", inf.Stat, w[2]}, {"df", res.DF[i], w[3]}, {"p", inf.P, w[4]}} {
+		}{{"estimate", res.Estimates[i], w[0]}, {"std. error", res.StdErrors[i], w[1]}, {"t", inf.Stat, w[2]}, {"df", res.DF[i], w[3]}, {"p", inf.P, w[4]},
+			{"RIV", pl.RIV[i], w[5]}, {"FMI", pl.FMI[i], w[6]}, {"lambda", pl.Lambda[i], w[7]}} {
 			near(res.ParamNames[i]+" "+c.what, c.got, c.want)
 		}
 	}

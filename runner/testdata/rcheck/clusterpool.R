@@ -6,7 +6,9 @@
 # inverse information times the summed outer products of the clusters'
 # score sums times G/(G-1) (N-1)/(N-P). Pooled by mitml with the
 # complete-data degrees of freedom of clustered errors: testEstimates
-# with df.com = G-1 (each slope's t, Barnard-Rubin df and p), and
+# with df.com = G-1 (each slope's t, Barnard-Rubin df and p, relative
+# increase in variance and fraction of missing information; lambda = (1 +
+# 1/m) B/T computed here), and
 # testConstraints (D1) of the two slopes of g with df.com = G-2, whose F
 # is then multiplied by (G-2)/(G-1) and referred to F(2, df2) here.
 # Prints "name v1 v2 ..." lines with 17 significant digits.
@@ -37,7 +39,14 @@ for (i in seq_len(m)) {
 }
 out("clusters", G)
 te <- testEstimates(qhat = qhat, uhat = uhat, df.com = G - 1)$estimates
-for (p in c("x", "gb", "gc")) out(p, te[p, c("Estimate", "Std.Error", "t.value", "df", "P(>|t|)")])
+for (p in c("x", "gb", "gc")) {
+  # lambda = (1 + 1/m) B / T by hand from the sets' estimates and variances.
+  q <- sapply(qhat, function(b) b[[p]])
+  u <- sapply(uhat, function(V) V[p, p])
+  B <- var(q)
+  lambda <- (1 + 1 / m) * B / (mean(u) + (1 + 1 / m) * B)
+  out(p, c(te[p, c("Estimate", "Std.Error", "t.value", "df", "P(>|t|)", "RIV", "FMI")], lambda))
+}
 tc <- testConstraints(qhat = qhat, uhat = uhat, constraints = c("gb", "gc"), method = "D1", df.com = G - 2)$test
 F <- tc[1, "F.value"] * (G - 2) / (G - 1)
 df2 <- tc[1, "df2"]
