@@ -712,7 +712,11 @@ func termTestsMethods(r *runner.Result, or *runner.OutcomeResult, inf plan.Infer
 		}
 		cause = fmt.Sprintf("a term associated with the outcome given the others is not thereby a cause of it, except that the comparison of %s, assigned to the units by chance, has a causal reading under the trial's conditions", words.AndList(code))
 	}
-	s = append(s, fmt.Sprintf("These tests assume the chosen model holds and refer their statistics to large-sample distributions: the Wald and likelihood-ratio statistics can differ in small samples, in large samples they reject for effects too small to matter, and %s; their p-values were not corrected for the number of terms tested.", cause))
+	differ := "the Wald and likelihood-ratio statistics can differ in small samples"
+	if slices.Contains(or.Chosen.Result.Model.Effects, fit.Constrained) {
+		differ += " (and, for constrained effects, whose Wald statistic depends on the parameterization, in large ones too; the likelihood ratio is then preferred)"
+	}
+	s = append(s, fmt.Sprintf("These tests assume the chosen model holds and refer their statistics to large-sample distributions: %s, in large samples they reject for effects too small to matter, and %s; their p-values were not corrected for the number of terms tested.", differ, cause))
 	return strings.Join(s, " ")
 }
 

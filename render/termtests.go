@@ -1,6 +1,8 @@
 package render
 
 import (
+	"fmt"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -90,7 +92,32 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			d.p("On imputed data the likelihood-ratio test is pooled over the sets by D3 (each set's statistic at its own estimates and at the pooled ones), an F statistic on the degrees of freedom shown.")
 		}
 	}
-	d.p("The two tests rest on the same large-sample theory and agree closely in large samples; in small samples, or when an effect is large, they can differ, and the likelihood ratio is then usually preferred (it does not depend on how the model is parameterized; the Wald test does). With many observations both reject for effects too small to matter: read them with the estimates. A small p-value says the term is associated with the outcome given the other terms, not that it causes it. The p-values are not corrected for the number of terms tested (the plan's `inference.multiplicity` applies to its hypotheses only).")
+	d.p("The two tests rest on the same large-sample theory. For slopes that are parameters of the model, as parallel and nonparallel effects are, they agree closely in large samples; in small samples, or when an effect is large, they can differ. A constrained effect is a product, b_m = φ_m g, so a test of its columns is not a test of parameters set to 0 one by one: its Wald statistic depends on how the model is parameterized (through φ and g), and it can differ from the likelihood ratio however many observations there are. Where the two differ, prefer the likelihood ratio, which does not depend on the parameterization. With many observations both reject for effects too small to matter: read them with the estimates. A small p-value says the term is associated with the outcome given the other terms, not that it causes it. The p-values are not corrected for the number of terms tested (the plan's `inference.multiplicity` applies to its hypotheses only).")
+	if s := constrainedTermTests(or); s != "" {
+		d.p("**Constrained effects in %s:** %s. Their Wald statistics depend on the parameterization of the constraint; read the likelihood-ratio tests.", or.Chosen.ID, s)
+	}
+}
+
+// constrainedTermTests lists the term tests of the chosen model that
+// test columns with constrained effects, each with its Wald and
+// likelihood-ratio statistics ("" when there are none, or when one of
+// the two was not computed for every such test).
+func constrainedTermTests(or *runner.OutcomeResult) string {
+	res := or.Chosen.Result
+	constrained := map[string]bool{}
+	for k, e := range res.Model.Effects {
+		if e == fit.Constrained && k < len(res.Predictors) {
+			constrained[res.Predictors[k]] = true
+		}
+	}
+	var parts []string
+	for _, tt := range or.TermTests {
+		if !slices.ContainsFunc(tt.Columns, func(c string) bool { return constrained[c] }) || !tt.Wald.OK || !tt.LR.OK {
+			continue
+		}
+		parts = append(parts, fmt.Sprintf("the tests of %s give Wald %s and likelihood ratio %s", tt.Term, runner.TestStatistic(tt.Wald), runner.TestStatistic(tt.LR)))
+	}
+	return strings.Join(parts, "; ")
 }
 
 // termStatistic is a term test's statistic and p-value for the table, or

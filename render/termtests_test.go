@@ -59,7 +59,15 @@ func TestTermTestsRendered(t *testing.T) {
 	src := strings.NewReplacer("EFFECTS", "constrained", "PARTIAL", "{free: [x, g]}").Replace(termPlan)
 	md := string(renderSource(t, dir, src, 1)["report.md"])
 	hasAll(t, "report.md", md, "| the constraint group | its columns x, g.b, g.c | chi2(9) = ",
-		"**Degrees of freedom of the tests of the constraint group:** x, g.b, g.c make up a whole constraint group")
+		"**Degrees of freedom of the tests of the constraint group:** x, g.b, g.c make up a whole constraint group",
+		// Wald and likelihood ratio need not agree for constrained
+		// effects, however large the sample: said, with the tests listed.
+		"A constrained effect is a product, b_m = φ_m g, so a test of its columns is not a test of parameters set to 0 one by one",
+		"**Constrained effects in cumulative/constrained/logit:** the tests of x give Wald chi2(",
+		"read the likelihood-ratio tests.")
+	if strings.Contains(md, "same large-sample theory and agree closely in large samples") {
+		t.Error("report.md still says the Wald and likelihood-ratio tests agree closely in large samples, without the exception of constrained effects")
+	}
 	wald := string(renderSource(t, dir, src+"inference: {term_tests: wald}\n", 1)["report.md"])
 	hasAll(t, "report.md (wald)", wald, "The plan asks for the Wald test only (`inference.term_tests: wald`)", "| Term | Tested with | Wald | p |\n")
 	none := string(renderSource(t, dir, src+"inference: {term_tests: none}\n", 1)["report.md"])
