@@ -158,9 +158,10 @@ rules:
 	}
 	hasAll(t, "report.md", md, want...)
 	// x2's mean over the rows where it and the outcome are observed, in
-	// the last column (All) of the predictors by outcome category.
-	if m := regexp.MustCompile(`(?m)^\| x2 \|.* ([-0-9.]+) \([0-9.]+\) \|$`).FindStringSubmatch(md); m == nil || m[1] != fmt.Sprintf("%.3f", sumX2/float64(nX2)) {
-		t.Errorf("x2 over all observed rows: got %v, want mean %.3f", m, sumX2/float64(nX2))
+	// the last column (All) of the predictors by outcome category, with
+	// the rows it counts.
+	if m := regexp.MustCompile(`(?m)^\| x2 \|.* ([-0-9.]+) \([0-9.]+\), ([0-9]+) rows \|$`).FindStringSubmatch(md); m == nil || m[1] != fmt.Sprintf("%.3f", sumX2/float64(nX2)) || m[2] != fmt.Sprint(nX2) {
+		t.Errorf("x2 over all observed rows: got %v, want mean %.3f over %d rows", m, sumX2/float64(nX2), nX2)
 	}
 	var dec struct {
 		Outcomes []struct {

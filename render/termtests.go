@@ -92,7 +92,11 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			d.p("On imputed data the likelihood-ratio test is pooled over the sets by D3 (each set's statistic at its own estimates and at the pooled ones), an F statistic on the degrees of freedom shown.")
 		}
 	}
-	d.p("The two tests rest on the same large-sample theory. For slopes that are parameters of the model, as parallel and nonparallel effects are, they agree closely in large samples; in small samples, or when an effect is large, they can differ. A constrained effect is a product, b_m = φ_m g, so a test of its columns is not a test of parameters set to 0 one by one: its Wald statistic depends on how the model is parameterized (through φ and g), and it can differ from the likelihood ratio however many observations there are. Where the two differ, prefer the likelihood ratio, which does not depend on the parameterization. With many observations both reject for effects too small to matter: read them with the estimates. A small p-value says the term is associated with the outcome given the other terms, not that it causes it. The p-values are not corrected for the number of terms tested (the plan's `inference.multiplicity` applies to its hypotheses only).")
+	constrained := ""
+	if slices.Contains(or.Chosen.Result.Model.Effects, fit.Constrained) {
+		constrained = " A constrained effect is a product, b_m = φ_m g, so a test of its columns is not a test of parameters set to 0 one by one: its Wald statistic depends on how the model is parameterized (through φ and g), and it can differ from the likelihood ratio however many observations there are."
+	}
+	d.p("The two tests rest on the same large-sample theory. For slopes that are parameters of the model, as parallel and nonparallel effects are, they agree closely in large samples; in small samples, or when an effect is large, they can differ.%s Where the two differ, prefer the likelihood ratio, which does not depend on the parameterization (the Wald test does). With many observations both reject for effects too small to matter: read them with the estimates. A small p-value says the term is associated with the outcome given the other terms, not that it causes it. The p-values are not corrected for the number of terms tested (the plan's `inference.multiplicity` applies to its hypotheses only).", constrained)
 	if s := constrainedTermTests(or); s != "" {
 		d.p("**Constrained effects in %s:** %s. Their Wald statistics depend on the parameterization of the constraint; read the likelihood-ratio tests.", or.Chosen.ID, s)
 	}
