@@ -9,6 +9,7 @@ import (
 
 	"ordplan/internal/words"
 	"ordplan/plan"
+	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/fit"
 )
@@ -114,6 +115,7 @@ func writeSummary(d *doc, r *runner.Result) {
 			if s := negativeRows(or.Chosen.Result); s != "" {
 				item += fmt.Sprintf(" **This model %s** (its cumulative probabilities cross; see the chosen model's section).", s)
 			}
+			item += chosenChecks(r, or)
 		}
 		if g := runner.ClusterCount(or.Data); r.Analysis != nil && r.Analysis.Errors.Covariance == fit.Clustered && g >= 2 && g < fit.FewClusters {
 			if r.Analysis.Errors.Jackknife() {
@@ -142,6 +144,72 @@ func writeSummary(d *doc, r *runner.Result) {
 	default:
 		d.p("The sections below give the data, every candidate model, the tests, each decision rule's verdict on each model, and then the chosen model's estimates, predicted probabilities and marginal effects. report.html holds the same text with charts.")
 	}
+}
+
+// chosenChecks says, for the Summary, which of the chosen model's own
+// checks reject it at the plan's alpha: the nested likelihood-ratio tests
+// in which it is the restricted model, and the goodness-of-fit tests
+// (Lipsitz, Pulkstenis-Robinson); then what the plan's test rules tested
+// it against, which is all that entered the choice. "" when no check
+// rejects it.
+func chosenChecks(r *runner.Result, or *runner.OutcomeResult) string {
+	alpha := r.Plan.Tests.Alpha
+	var rejects []string
+	add := func(what string, t fit.Test) {
+		if t.OK && t.P < alpha {
+			rejects = append(rejects, fmt.Sprintf("%s (%s, %s)", what, runner.TestStatistic(t), numfmt.PText(t.P)))
+		}
+	}
+	for _, tb := range or.Tests {
+		for _, nt := range tb.Nested {
+			if nt.Restricted == or.Chosen.ID {
+				add("the nested likelihood-ratio test against "+nt.Full, nt.Test)
+			}
+		}
+	}
+	if or.Lipsitz != nil {
+		add("the Lipsitz goodness-of-fit test", or.Lipsitz.Test)
+	}
+	if ps := or.PatternSplit; ps != nil && ps.PatternSplit != nil {
+		add("the Pulkstenis-Robinson Pearson test", ps.Pearson)
+		add("the Pulkstenis-Robinson deviance test", ps.Deviance)
+	}
+	if len(rejects) == 0 {
+		return ""
+	}
+	out := fmt.Sprintf(" **Checks of this model shown in the report reject it at alpha %g:** %s.", alpha, strings.Join(rejects, "; "))
+	var rules []string
+	for _, ro := range or.Rules {
+		if ro.Rule.Kind != plan.RuleRejectIfTestRejects {
+			continue
+		}
+		for _, v := range ro.Verdicts {
+			if v.Model == or.Chosen.ID {
+				verdict := "kept"
+				if !v.Kept {
+					verdict = "rejected"
+				}
+				rules = append(rules, fmt.Sprintf("`%s` (plan line %d) tests a model against %s only, as the rule says, and %s it: %s", ro.Rule.Kind, ro.Rule.Line, againstWords(ro.Rule.Against), verdict, strings.TrimSuffix(v.Reason, ".")))
+			}
+		}
+	}
+	if len(rules) > 0 {
+		out += fmt.Sprintf(" The choice did not use them: the plan's test rule %s.", strings.Join(rules, "; and "))
+	} else {
+		out += " No rule of the plan uses these tests, so they did not enter the choice."
+	}
+	return out + " Read the estimates with this in mind."
+}
+
+// againstWords names what a test rule compares each model with.
+func againstWords(against string) string {
+	switch against {
+	case plan.AgainstNext:
+		return "the nearest less constrained model"
+	case plan.AgainstEach:
+		return "each less constrained model of its approach and link"
+	}
+	return "the least constrained model of its approach and link"
 }
 
 // errorsCell is the plan table's standard errors: the plan's value, and

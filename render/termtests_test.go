@@ -85,3 +85,55 @@ func TestTermTestsRendered(t *testing.T) {
 	hasAll(t, "report.md (stepwise)", out, "**Warning**, step 1, test of x: a made-up warning.",
 		"Step 1 passed over `g`: its likelihood-ratio statistic is negative (-0.5): made up.")
 }
+
+// TestSummaryNamesFailedChecks: the Summary names the chosen model's own
+// checks that reject it at the plan's alpha (a nested likelihood-ratio
+// test in which it is the restricted model, the Lipsitz test), and says
+// that the plan's test rule tested it against the least constrained model
+// only; nothing is said when every check passes. The p-values are set
+// here, so that the test does not depend on what the data give.
+func TestSummaryNamesFailedChecks(t *testing.T) {
+	dir := t.TempDir()
+	termData(t, dir)
+	src := strings.NewReplacer("EFFECTS", "parallel, partial, nonparallel", "PARTIAL", "{free: [x]}",
+		"  - choose: {by: aic}", "  - reject_if_test_rejects: {test: lr, alpha: 0.001}\n  - choose: {by: bic}").Replace(termPlan)
+	if err := os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	summary := func(md string) string {
+		return md[strings.Index(md, "## Summary"):strings.Index(md, "## The plan")]
+	}
+	res := runPlan(t, filepath.Join(dir, "p.yaml"), 1)
+	or := res.Outcomes[0]
+	if or.Chosen == nil || or.Lipsitz == nil {
+		t.Fatalf("chosen %v, Lipsitz %v", or.Chosen, or.Lipsitz)
+	}
+	id := or.Chosen.ID
+	// Every check passes: the Summary says nothing of them.
+	or.Lipsitz.Test.P = 0.5
+	nested := -1
+	for i, nt := range or.Tests[0].Nested {
+		if nt.Restricted == id {
+			or.Tests[0].Nested[i].Test.P = 0.5
+			nested = i
+		}
+	}
+	if nested < 0 {
+		t.Fatalf("no nested test with %s restricted: %+v", id, or.Tests[0].Nested)
+	}
+	if ps := or.PatternSplit; ps != nil && ps.PatternSplit != nil {
+		ps.Pearson.P, ps.Deviance.P = 0.5, 0.5
+	}
+	if s := summary(string(outputsOf(t, res)["report.md"])); strings.Contains(s, "Checks of this model") {
+		t.Errorf("the Summary names checks that pass:\n%s", s)
+	}
+	or.Lipsitz.Test.P = 0.0074
+	nt := &or.Tests[0].Nested[nested]
+	nt.Test.P = 0.0011
+	s := summary(string(outputsOf(t, res)["report.md"]))
+	hasAll(t, "Summary", s,
+		"**Checks of this model shown in the report reject it at alpha 0.05:** the nested likelihood-ratio test against "+nt.Full+" (chi2(",
+		"p = 0.0011); the Lipsitz goodness-of-fit test (chi2(",
+		"p = 0.0074). The choice did not use them: the plan's test rule `reject_if_test_rejects` (plan line ",
+		") tests a model against the least constrained model of its approach and link only, as the rule says, and kept it: ")
+}
