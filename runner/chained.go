@@ -51,17 +51,28 @@ type ImputationProgress interface {
 	Imputed(outcome string, done, total int)
 }
 
+// loadIncomplete reads outcome r's rows as data.missing: impute keeps
+// them, rows with missing values included.
+func (a *Analysis) loadIncomplete(r Reading) (*data.Dataset, error) {
+	dopt := r.Options
+	dopt.Refuse, dopt.KeepIncomplete = false, true
+	ds, err := data.LoadFiles(a.Paths(), dopt)
+	if err != nil {
+		return nil, fmt.Errorf("%s (plan %s, outcome %q%s)", err, a.Source, r.Outcome, r.keyOf(err))
+	}
+	return ds, nil
+}
+
 // chainedSets imputes an outcome's data by chained equations: the rows
 // with a missing outcome or predictor are kept, the outcome and the raw
 // columns of the terms (with the offset as a complete column) are imputed
 // data.imputation.sets times, and the imputed sets get the design frozen
 // on the first of them.
 func chainedSets(a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Dataset, *design.Design, error) {
-	spec, dopt := r.Design, r.Options
-	dopt.Refuse, dopt.KeepIncomplete = false, true
-	ds, err := data.LoadFiles(a.Paths(), dopt)
+	spec := r.Design
+	ds, err := a.loadIncomplete(r)
 	if err != nil {
-		return nil, nil, nil, fmt.Errorf("%s (plan %s, outcome %q%s)", err, a.Source, r.Outcome, r.keyOf(err))
+		return nil, nil, nil, err
 	}
 	if err := a.Observed(r, ds); err != nil {
 		return nil, nil, nil, err

@@ -33,16 +33,9 @@ func CheckData(p *plan.Plan) ([]string, error) {
 			return nil, err
 		}
 		warnings = append(warnings, pointWarnings(r.Outcome, ld.Data)...)
-		// The rows the fits use: on imputed data each imputed set's (run
-		// counts the clusters in set 1's rows), not the original file's
-		// complete rows.
-		used := ld.Data
-		if a.Imputed != nil {
-			_, sets, _, err := imputedSets(a, r)
-			if err != nil {
-				return nil, err
-			}
-			used = sets[0]
+		used, err := a.rowsFitted(r, ld.Data)
+		if err != nil {
+			return nil, err
 		}
 		if w := a.FewClusters(r, used); w != "" {
 			warnings = append(warnings, fmt.Sprintf("outcome %s: %s", r.Outcome, w))
@@ -85,6 +78,34 @@ func CheckData(p *plan.Plan) ([]string, error) {
 		}
 	}
 	return warnings, nil
+}
+
+// rowsFitted are the rows the fits of outcome r use, as run counts them
+// for its warnings (its first imputed set): on imputed data the rows of
+// an imputed set, with data.missing: impute the rows kept for imputation
+// (frequency weights expanded, as chainedSets does), not the complete
+// rows of the data file (complete, what a.Load read).
+func (a *Analysis) rowsFitted(r Reading, complete *data.Dataset) (*data.Dataset, error) {
+	switch {
+	case a.Imputed != nil:
+		_, sets, _, err := imputedSets(a, r)
+		if err != nil {
+			return nil, err
+		}
+		return sets[0], nil
+	case a.Imputes():
+		ds, err := a.loadIncomplete(r)
+		if err != nil {
+			return nil, err
+		}
+		if ds.Weights != nil {
+			if ds, err = expandCounts(ds); err != nil {
+				return nil, fmt.Errorf("%s: data.weights: %v (data.missing: impute, outcome %q)", a.Source, err, r.Outcome)
+			}
+		}
+		return ds, nil
+	}
+	return complete, nil
 }
 
 // FewClustersWarnings are the warnings of a run's outcomes whose data have

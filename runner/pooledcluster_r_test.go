@@ -172,6 +172,14 @@ func TestPooledJackknife(t *testing.T) {
 	if !slices.ContainsFunc(warns, func(w string) bool { return strings.Contains(w, `column "site" holds 8 clusters in the 300 rows used`) }) {
 		t.Errorf("check's warnings count other rows than run's: %q", warns)
 	}
+	// So with the imputation made by the run (data.missing: impute): the
+	// rows kept for imputation.
+	if warns, err = CheckData(planIn(t, dir, plan("{file: orig.csv, cluster: site, missing: impute, imputation: {sets: 2, iterations: 1}}"))); err != nil {
+		t.Fatal(err)
+	}
+	if !slices.ContainsFunc(warns, func(w string) bool { return strings.Contains(w, `column "site" holds 8 clusters in the 300 rows used`) }) {
+		t.Errorf("check's warnings with data.missing: impute count other rows than run's: %q", warns)
+	}
 	sets := make([]impute.Set, m)
 	for k := range sets {
 		one := runPlan(t, planIn(t, dir, plan(fmt.Sprintf("{file: imp%d.csv, cluster: site}", k+1))), 0).Outcomes[0].Chosen.Result
