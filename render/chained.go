@@ -7,6 +7,7 @@ import (
 	"ordplan/internal/words"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
+	"ordplan/runner/data"
 	"ordplan/runner/design"
 	"ordplan/runner/impute/chained"
 )
@@ -80,7 +81,7 @@ func clusterCaution(cluster string) string {
 // how the sets were made (by this run or elsewhere) and pooled, with the
 // complete-data degrees of freedom of the pooling (g: the clusters of a
 // cluster-robust covariance, 0 for none; completeDFText).
-func imputationMethods(im *runner.ImputedRun, dz *design.Design, cluster string, g int, c *citer) string {
+func imputationMethods(im *runner.ImputedRun, mt *data.MissingTable, dz *design.Design, cluster string, g int, c *citer) string {
 	pool := func() string {
 		joint := ""
 		if g > 0 {
@@ -118,8 +119,14 @@ func imputationMethods(im *runner.ImputedRun, dz *design.Design, cluster string,
 			fallback = fmt.Sprintf(" Imputation models with perfect prediction were refitted with weighted pseudo-observations %s.", c.cite("augment"))
 		}
 	}
-	return fmt.Sprintf("The %d rows with a missing value in the outcome or a predictor were kept, and their missing values were multiply imputed by chained equations %s: %d imputed sets, each after %d iterations (seed %d), with %s, every model given the outcome and the other columns and its parameters drawn from their approximate posterior; transformations and interactions were computed from the imputed columns.%s%s The imputation assumes that values are missing at random given these columns.%s %s",
-		ch.RowsIncomplete, sources, ch.Sets, ch.Iterations, ch.Seed, strings.Join(models, "; "), fallback, mainEffectsCaution(dz), clusterCaution(cluster), pool())
+	by := ""
+	if mt != nil {
+		if w := missingByColumnWords(mt); w != "" {
+			by = " (missing by column: " + w + ")"
+		}
+	}
+	return fmt.Sprintf("The %d rows (%s of %d) with a missing value in the outcome or a predictor were kept%s, and their missing values were multiply imputed by chained equations %s: %d imputed sets, each after %d iterations (seed %d), with %s, every model given the outcome and the other columns and its parameters drawn from their approximate posterior; transformations and interactions were computed from the imputed columns.%s%s The imputation assumes that values are missing at random given these columns.%s %s",
+		ch.RowsIncomplete, sharePct(ch.RowsIncomplete, im.Rows), im.Rows, by, sources, ch.Sets, ch.Iterations, ch.Seed, strings.Join(models, "; "), fallback, mainEffectsCaution(dz), clusterCaution(cluster), pool())
 }
 
 // mainEffectsCaution warns, when the analysis has interactions or

@@ -55,6 +55,12 @@ rules:
 		"were multiply imputed by chained equations [1, 2]: 3 imputed sets, each after 2 iterations (seed 5), with predictive mean matching with 5 donors [3] for x2",
 		"[3] Little, R.J.A. (1988). Missing-data adjustments in large surveys.",
 	)
+	// The Methods draft gives the share of incomplete rows and the rows
+	// missing each column, the numbers of the Data section's table.
+	m := regexp.MustCompile("The ([0-9]+) rows \\(([0-9.]+%) of 200\\) with a missing value in the outcome or a predictor were kept \\(missing by column: `x2` ([0-9]+) \\(([0-9.]+%)\\)\\)").FindStringSubmatch(md)
+	if m == nil || m[1] != m[3] || m[2] != m[4] || !strings.Contains(md, "| `x2` | "+m[3]+" | "+m[4]+" |") {
+		t.Errorf("the Methods draft's count of incomplete rows: %q", m)
+	}
 	if strings.Contains(md, "The imputation models hold main effects only") {
 		t.Error("the caution about terms the imputation models lack is given for a plan of main effects")
 	}

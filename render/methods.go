@@ -121,7 +121,7 @@ func writeMethods(d *doc, r *runner.Result) {
 			s = append(s, fmt.Sprintf("All %d rows were used.", ds.N))
 		}
 		if im := or.Imputed; im != nil {
-			s = append(s, imputationMethods(im, or.Design, p.Data.Cluster, pooledClusters(or), c))
+			s = append(s, imputationMethods(im, or.Data.Missing, or.Design, p.Data.Cluster, pooledClusters(or), c))
 		}
 		d.p("%s", strings.Join(s, " "))
 		if pm := predictorsMethods(p, or); pm != "" {
