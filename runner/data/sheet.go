@@ -196,7 +196,8 @@ func openSheet(raw []byte, d Dialect) (*sheetRecords, string) {
 		return nil, fmt.Sprintf("sheet %s has %d rows, so no header in row %d (data.header_row, or --header-row)", quoteCell(sheet), len(rows), h)
 	}
 	sr := &sheetRecords{first: h, read: SheetRead{Name: sheet, Hidden: hidden, Sheets: len(f.GetSheetList())}}
-	if files, x := workbookParts(raw, sheet); x != nil {
+	files, x := workbookParts(raw, sheet)
+	if x != nil {
 		sr.formulas = scanFormulas(x)
 		sr.hiddenRows = scanHiddenRows(x)
 		scanBoolCells(x, func(col, row int) {
@@ -222,6 +223,11 @@ func openSheet(raw []byte, d Dialect) (*sheetRecords, string) {
 					rows[row-1][col-1] = commaNumber(rows[row-1][col-1])
 				}
 			})
+		}
+	}
+	if x != nil {
+		if part := sheetPart(files, sheet); part != nil {
+			withoutRows(f, part.Name, x)
 		}
 	}
 	merged, err := f.GetMergeCells(sheet, true)
@@ -462,11 +468,56 @@ func (s *SheetRead) HiddenNames() []string {
 	return out
 }
 
+// withoutRows gives excelize, for its parse of the worksheet stored as
+// part name (its XML x), the worksheet without its rows: <sheetData>
+// emptied. The cells are read by then (GetRows streams them, and the
+// scans of the XML in openSheet read x), and what is asked of excelize
+// after (GetMergeCells, GetColVisible: the merged ranges and the columns'
+// settings lie outside <sheetData>) is then a parse of a few kilobytes,
+// not of every cell again, with excelize's own reading of those elements
+// (overlapping ranges joined, a range's spelling, the last <col> that
+// covers a column). When the rows cannot be told apart for sure (no
+// <sheetData> element, or markup before it that could hide one: a
+// comment, a CDATA section), nothing changes, and excelize parses the
+// whole worksheet as before.
+func withoutRows(f *excelize.File, name string, x []byte) {
+	root := bytes.Index(x, []byte("worksheet"))
+	lt := bytes.LastIndexByte(x[:max(root, 0)], '<')
+	if root < 0 || lt < 0 {
+		return
+	}
+	prefix := string(x[lt+1 : root]) // the namespace prefix, "x:" or ""
+	open := []byte("<" + prefix + "sheetData")
+	start := bytes.Index(x, open)
+	if start < 0 || bytes.Contains(x[:start], []byte("<!")) {
+		return
+	}
+	end := bytes.IndexByte(x[start:], '>')
+	if end < 0 {
+		return
+	}
+	end += start + 1 // just past the start tag
+	if c := x[start+len(open)]; c != '>' && c != '/' && c != ' ' && c != '\t' && c != '\r' && c != '\n' {
+		return // another element whose name begins so
+	}
+	if x[end-2] == '/' {
+		return // <sheetData/>: no rows to leave out
+	}
+	closing := bytes.LastIndex(x, []byte("</"+prefix+"sheetData>"))
+	if closing < end {
+		return
+	}
+	out := make([]byte, 0, end+len(x)-closing)
+	out = append(append(out, x[:end]...), x[closing:]...)
+	f.Pkg.Store(strings.ReplaceAll(name, "\\", "/"), out)
+}
+
 // hiddenColumns finds the columns 1 to width of a worksheet hidden from
 // view (hidden by hand, or by a collapsed outline: <col hidden="1">).
 // GetColVisible reads the worksheet's structure, which excelize parses
-// once and keeps: openSheet asks after GetMergeCells has parsed it, so
-// the columns cost nothing more (asked first, the parse would be theirs).
+// once and keeps: openSheet asks after GetMergeCells has parsed it (the
+// worksheet without its rows, withoutRows), so the columns cost nothing
+// more.
 func hiddenColumns(f *excelize.File, sheet string, width int) map[int]bool {
 	var out map[int]bool
 	for c := 1; c <= width; c++ {
