@@ -32,7 +32,9 @@ const compactHelp = `Predictor terms, comma separated (quote the whole list for 
   ...|as=name                 names the term (columns derive from it)
 Transformations apply in this order: log or sqrt, centre, scale, polynomial or spline. Columns are
 named term, term.level (categorical), term.1, term.2 (polynomial, spline) and a&b (products);
---nonparallel and --constrained name terms.`
+--nonparallel and --constrained name terms. Each option is given once; log, sqrt and drop take
+no value, scale only sd. A term may not be named as the models name other parameters (tau,
+phi, alpha, NAME[m]).`
 
 // parseCompactTerms reads the compact form of predictor terms (see
 // compactHelp) into the raw columns and terms of a design.
