@@ -1991,7 +1991,7 @@ func catalogue(dir string) (items []badInput) {
 			}},
 		{id: "D46", name: "cluster ids written as one number in two ways (7, 7.0, 07)", setup: clusterSpellings, code: 0,
 			args: fitArgs(d("clspell.csv"), "--predictors", "a,b", "--covariance", "clustered", "--cluster", "num"),
-			want: []string{"), 48 clusters\n"}},
+			want: []string{"), 48 clusters\n", "Cluster column num: ids written as one number in different ways were counted as one cluster ("}},
 		{id: "W28", name: "cluster ids that differ only in letter case (warned, not merged)", setup: clusterSpellings, code: 0,
 			args: fitArgs(d("clspell.csv"), "--predictors", "a,b", "--covariance", "clustered", "--cluster", "word"),
 			want: []string{"), 96 clusters\n", `Warning: --cluster: column "word" holds cluster ids that differ only in letter case ("K0" and "k0", and 47 more such sets of ids): each is counted as a cluster of its own; if they name one cluster, write its id alike in every row.`}},

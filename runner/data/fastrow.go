@@ -429,6 +429,8 @@ func (t *rowTally) fork() *rowTally {
 		pat:           make([]byte, len(t.pat)),
 		xs:            make([]float64, len(t.xs)),
 		clusters:      map[string]string{},
+		spelled:       map[string]string{},
+		respelled:     map[string]string{},
 	}
 	for col, seen := range t.levelSeen {
 		f.levelSeen[col] = make([]float64, len(seen))
@@ -456,6 +458,7 @@ func (t *rowTally) join(c *rowTally) {
 		t.subsetDrops[i] += n
 	}
 	t.listSeen.Add(c.listSeen)
+	t.joinSpellings(c)
 	t.zeroWeight += c.zeroWeight
 	for k, n := range c.patterns {
 		t.patterns[k] += n

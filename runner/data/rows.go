@@ -113,6 +113,9 @@ func (r *reader) finish(t *rowTally, d *Dataset) (*Dataset, error) {
 	if !opt.Part {
 		d.Notes = append(d.Notes, r.pointNotes...)
 		d.PointNotes = r.pointNotes
+		if n := t.respelledNote(opt.Cluster); n != "" {
+			d.Notes = append(d.Notes, n)
+		}
 	}
 	if opt.Sampling && !opt.Unscaled {
 		total := weightTotal(d.Weights)
@@ -201,6 +204,8 @@ type rowTally struct {
 	pat           []byte                    // the current row's pattern
 	xs            []float64                 // the current row's predictor values
 	clusters      map[string]string         // one copy of each cluster id kept
+	spelled       map[string]string         // cluster id -> its first spelling in the file, when that is not the id
+	respelled     map[string]string         // other spellings of a cluster id written as a number (7.0 beside 7) -> the id
 	listSeen      ListValues                // per one_of/none_of condition: the values its column holds (nil: other conditions)
 }
 
@@ -230,6 +235,8 @@ func (r *reader) newRowTally(K int) *rowTally {
 		pat:           make([]byte, len(r.cols)),
 		xs:            make([]float64, K),
 		clusters:      map[string]string{},
+		spelled:       map[string]string{},
+		respelled:     map[string]string{},
 	}
 	for i, l := range opt.Categories {
 		t.labels[l] = i
@@ -640,8 +647,52 @@ func (r *reader) keepValues(t *rowTally, d *Dataset, row *cells, line int) {
 		d.Offset = append(d.Offset, row.off)
 	}
 	if opt.Cluster != "" {
-		d.Cluster = append(d.Cluster, t.intern(ClusterID(row.cl, opt.Dialect)))
+		id := ClusterID(row.cl, opt.Dialect)
+		t.spelling(id, row.cl)
+		d.Cluster = append(d.Cluster, t.intern(id))
 	}
+}
+
+// spelling notes that the cluster cell cell is counted under id: a
+// second way of writing one id (7 and 7.0, 07) is remembered, so that
+// the data's notes can say that such cells were counted as one cluster.
+func (t *rowTally) spelling(id, cell string) {
+	first, ok := t.spelled[id]
+	switch {
+	case !ok:
+		t.spelled[strings.Clone(id)] = strings.Clone(cell)
+	case first != cell:
+		if _, seen := t.respelled[cell]; !seen {
+			t.respelled[strings.Clone(cell)] = id
+		}
+	}
+}
+
+// joinSpellings adds the cluster spellings of a later chunk's tally.
+func (t *rowTally) joinSpellings(c *rowTally) {
+	for id, cell := range c.spelled {
+		t.spelling(id, cell)
+	}
+	for cell, id := range c.respelled {
+		t.spelling(id, cell)
+	}
+}
+
+// respelledNote is the data's note on cluster ids written as one number in
+// several ways ("" when there are none): the first other spelling in
+// sorted order, beside its id's first spelling in the file.
+func (t *rowTally) respelledNote(column string) string {
+	n := len(t.respelled)
+	if n == 0 {
+		return ""
+	}
+	cell := slices.Min(slices.Collect(maps.Keys(t.respelled)))
+	more := ""
+	if n > 1 {
+		more = fmt.Sprintf(", and %d more such spellings", n-1)
+	}
+	return fmt.Sprintf("Cluster column %s: ids written as one number in different ways were counted as one cluster (%s and %s%s), as outcome codes 2 and 2.0 are one category; if such ids name different clusters, write them so that they do not read as the same number (a letter before the digits, say)",
+		column, strconv.Quote(t.spelled[t.respelled[cell]]), strconv.Quote(cell), more)
 }
 
 // countDrops records the rows dropped (missing values, zero weight,
