@@ -96,9 +96,27 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	if slices.Contains(or.Chosen.Result.Model.Effects, fit.Constrained) {
 		constrained = " A constrained effect is a product, b_m = φ_m g, so a test of its columns is not a test of parameters set to 0 one by one: its Wald statistic depends on how the model is parameterized (through φ and g), and it can differ from the likelihood ratio however many observations there are."
 	}
-	d.p("The two tests rest on the same large-sample theory. For slopes that are parameters of the model, as parallel and nonparallel effects are, they agree closely in large samples; in small samples, or when an effect is large, they can differ.%s Where the two differ, prefer the likelihood ratio, which does not depend on the parameterization (the Wald test does). With many observations both reject for effects too small to matter: read them with the estimates. A small p-value says the term is associated with the outcome given the other terms, not that it causes it. The p-values are not corrected for the number of terms tested (the plan's `inference.multiplicity` applies to its hypotheses only).", constrained)
+	robustRead := "; read the likelihood-ratio tests"
+	tail := "With many observations the tests reject for effects too small to matter: read them with the estimates. A small p-value says the term is associated with the outcome given the other terms, not that it causes it. The p-values are not corrected for the number of terms tested (the plan's `inference.multiplicity` applies to its hypotheses only)."
+	if a := r.Analysis; a != nil && a.Errors.Covariance.IsSandwich() {
+		// Clustered or sandwich errors, or sampling weights (which imply a
+		// sandwich): the likelihood ratio takes the rows as independent and
+		// the model's variance as right, so it is not the test to prefer.
+		why := "the likelihood-ratio test takes the rows as independent and the model's variance as right, which these standard errors do not assume"
+		if a.Errors.Sampling {
+			why = "under sampling weights the fits maximize a pseudo-likelihood, and the likelihood-ratio test is not computed"
+		}
+		errs := "the " + a.Errors.Covariance.Phrase()
+		if a.Errors.Jackknife() {
+			errs = "the delete-one-cluster jackknife"
+		}
+		d.p("With standard errors from %s, the Wald test with this robust covariance is the one to read: %s.%s %s", errs, why, constrained, tail)
+		robustRead = " and the likelihood-ratio tests rest on the model's variance and on independent rows: read neither alone"
+	} else {
+		d.p("The two tests rest on the same large-sample theory. For slopes that are parameters of the model, as parallel and nonparallel effects are, they agree closely in large samples; in small samples, or when an effect is large, they can differ.%s Where the two differ, prefer the likelihood ratio, which does not depend on the parameterization (the Wald test does). %s", constrained, tail)
+	}
 	if s := constrainedTermTests(or); s != "" {
-		d.p("**Constrained effects in %s:** %s. Their Wald statistics depend on the parameterization of the constraint; read the likelihood-ratio tests.", or.Chosen.ID, s)
+		d.p("**Constrained effects in %s:** %s. Their Wald statistics depend on the parameterization of the constraint%s.", or.Chosen.ID, s, robustRead)
 	}
 }
 

@@ -137,3 +137,37 @@ func TestSummaryNamesFailedChecks(t *testing.T) {
 		"p = 0.0074). The choice did not use them: the plan's test rule `reject_if_test_rejects` (plan line ",
 		") tests a model against the least constrained model of its approach and link only, as the rule says, and kept it: ")
 }
+
+// TestTermTestsRobustReading: under sandwich or clustered errors, or
+// sampling weights, the paragraph after the tests of each term says to
+// read the Wald test with the robust covariance, and no longer that the
+// two tests agree closely in large samples or that the likelihood ratio is
+// to be preferred; under observed information it still says so.
+func TestTermTestsRobustReading(t *testing.T) {
+	dir := t.TempDir()
+	termData(t, dir)
+	base := strings.NewReplacer("EFFECTS", "parallel", "PARTIAL", "{}").Replace(termPlan)
+	const prefer, agree = "Where the two differ, prefer the likelihood ratio", "they agree closely in large samples"
+	plain := string(renderSource(t, dir, base, 1)["report.md"])
+	hasAll(t, "report.md (observed)", plain, prefer, agree)
+	raw, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "d.csv"), withWeights(string(raw), func(i int) float64 { return float64(1 + i%7) }), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for name, src := range map[string]string{
+		"sandwich":  base + "covariance: sandwich\n",
+		"clustered": strings.Replace(base, "data: {file: d.csv}", "data: {file: d.csv, cluster: w}", 1) + "covariance: clustered\n",
+		"sampling":  strings.NewReplacer("data: {file: d.csv}", "data: {file: d.csv, weights: w, weight_kind: sampling}", "by: aic", "by: tic").Replace(base),
+	} {
+		md := string(renderSource(t, dir, src, 1)["report.md"])
+		hasAll(t, "report.md ("+name+")", md, "the Wald test with this robust covariance is the one to read")
+		for _, bad := range []string{prefer, agree} {
+			if strings.Contains(md, bad) {
+				t.Errorf("report.md (%s) says %q", name, bad)
+			}
+		}
+	}
+}
