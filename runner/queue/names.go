@@ -48,8 +48,10 @@ const (
 	// version rejects a task instead of answering it. Raise it whenever a
 	// message's meaning changes, not only its fields: a worker that drops a
 	// field it does not know answers a different question (3: a partition
-	// task's Theta is in coordinates centred by its Shift).
-	formatVersion = "ordplan-queue/3"
+	// task's Theta is in coordinates centred by its Shift; 4: a reply's
+	// Fault marks a failure of the worker, which an older worker's error
+	// reply does not, so its errors must not be reused as fits' failures).
+	formatVersion = "ordplan-queue/4"
 )
 
 func jobSubject(batch string, index int) string {
