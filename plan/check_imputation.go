@@ -14,6 +14,12 @@ import (
 func (d *decoder) checkImputation(p *Plan) {
 	im := p.Data.Imputation
 	if !p.Data.Imputes() {
+		if p.Data.Imputed != nil && p.Data.Missing == "refuse" {
+			// The data file holds the original data, whose missing values
+			// the imputed sets fill in; the sets are refused if incomplete
+			// (I6) whatever data.missing says (P62).
+			d.errAt("data.missing", "refuse does not apply to imputed sets made elsewhere (data.imputed): the data file %s holds the original data, whose missing values the imputed sets fill in and the report describes, and every imputed set must be complete in the columns the plan uses whatever data.missing says; remove data.missing", quote(p.Data.Name()))
+		}
 		if im != nil {
 			d.errAt("data.imputation", "is used only with data.missing: impute (data.missing is %s)", quote(p.Data.Missing))
 		}

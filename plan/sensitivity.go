@@ -160,6 +160,9 @@ func (d *decoder) finishSensitivity(r *sensitivityRead, p *Plan) {
 	canon := canonicalJSON(p)
 	for i, s := range r.items {
 		changes := r.changes[i]
+		if d.missingWithImputed(p, changes) {
+			continue
+		}
 		for _, e := range r.errs[i] {
 			d.sensitivityError(e, s, changes, primaryErrs)
 		}
@@ -182,6 +185,24 @@ func (d *decoder) finishSensitivity(r *sensitivityRead, p *Plan) {
 		s.Plan.Inference = Inference{Multiplicity: MultiplicityNone, TermTests: TermTestsNone}
 		p.Sensitivity = append(p.Sensitivity, s)
 	}
+}
+
+// missingWithImputed refuses a change of data.missing in a plan that
+// reads imputed sets made elsewhere (data.imputed): the sets are analysed
+// whole whatever data.missing says (each must be complete, I6), so the
+// analysis would repeat the primary one under another name (P62). It
+// reports whether it refused one.
+func (d *decoder) missingWithImputed(p *Plan, changes []change) bool {
+	if p.Data.Imputed == nil {
+		return false
+	}
+	for _, c := range changes {
+		if c.key == "data.missing" {
+			d.errorf(c.keyNode, c.path, "cannot be changed in a plan that reads imputed sets made elsewhere (data.imputed): every imputed set is analysed whole whatever data.missing says (each must be complete in the columns the plan uses), so this analysis would analyse the same imputed sets again; to analyse the complete cases of the data file %s, run a plan of its own on it without data.imputed (data.missing: drop), and compare its report with this one", quote(p.Data.Name()))
+			return true
+		}
+	}
+	return false
 }
 
 // change is one key a sensitivity analysis changes.

@@ -992,6 +992,12 @@ func catalogue(dir string) (items []badInput) {
 			plan: goodPlan + "sensitivity:\n  - name: s\n    why: w\n    change: covariance\n  - name: t\n    why: w\n    change: {}\n",
 			want: []string{`P60.yaml:17:13: sensitivity[0].change: want a mapping of the keys it changes (one or more of data.missing, data.imputation, data.cluster, subset, categorical, predictors, models.partial, models.links, covariance, few_clusters) to their values; got string "covariance"`,
 				`P60.yaml:20:13: sensitivity[1].change: want a mapping of the keys it changes (one or more of data.missing,`, `got an empty mapping: an analysis that changes nothing is the primary analysis`}},
+		{id: "P62", name: "a sensitivity analysis changing data.missing in a plan that reads imputed sets made elsewhere", args: []string{"check", "--no-data"}, code: 1, lines: true,
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {files: [d.csv, full.csv]}\n") + "sensitivity:\n  - name: strict\n    why: w\n    change:\n      data.missing: refuse\n",
+			want: []string{`P62.yaml:19:7: sensitivity[0].change.data.missing: cannot be changed in a plan that reads imputed sets made elsewhere (data.imputed): every imputed set is analysed whole whatever data.missing says (each must be complete in the columns the plan uses), so this analysis would analyse the same imputed sets again; to analyse the complete cases of the data file "d.csv", run a plan of its own on it without data.imputed (data.missing: drop), and compare its report with this one`}},
+		{id: "P62", name: "data.missing: refuse in a plan that reads imputed sets made elsewhere", args: []string{"run"}, code: 1, lines: true,
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  missing: refuse\n  imputed: {files: [d.csv, full.csv]}\n"),
+			want: []string{`P62.yaml:4:12: data.missing: refuse does not apply to imputed sets made elsewhere (data.imputed): the data file "d.csv" holds the original data, whose missing values the imputed sets fill in and the report describes, and every imputed set must be complete in the columns the plan uses whatever data.missing says; remove data.missing`}},
 		{id: "P53", name: "plan file that does not exist", args: []string{"check", filepath.Join(dir, "no-such-plan.yaml")}, code: 1,
 			want: []string{"no-such-plan.yaml: the plan file does not exist: check its name and folder"},
 			check: func(t *testing.T, dir, out, errs string) {
