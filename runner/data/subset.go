@@ -84,7 +84,8 @@ func (c Condition) Keeps(cell string) bool {
 // sameValue reports whether a value of a one_of or none_of condition
 // names the cell: the same text (sameText), or the same number written
 // otherwise ("3.0" or "3e0" for a cell 3, the cell in the file's decimal
-// mark), as outcome codes are read (2.0 is the code 2). A boolean word is
+// mark; the value in the plan's point or the file's decimal mark, "3,5"
+// in a decimal-comma file), as outcome codes are read (2.0 is the code 2). A boolean word is
 // compared as text only.
 func sameValue(v, cell string, d Dialect) bool {
 	if sameText(v, cell) {
@@ -94,6 +95,14 @@ func sameValue(v, cell string, d Dialect) bool {
 		return false
 	}
 	y, err := strconv.ParseFloat(strings.TrimSpace(v), 64)
+	if _, isBool := boolWord(v); err != nil && d.DecimalComma && !isBool {
+		// A value written in the file's own decimal mark ("3,50"), read
+		// as the cells are.
+		var msg string
+		if y, msg = d.number(strings.TrimSpace(v)); msg == "" {
+			err = nil
+		}
+	}
 	if err != nil {
 		return false
 	}
