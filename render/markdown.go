@@ -343,7 +343,7 @@ func writeLimits(d *doc, r *runner.Result) {
 		hypothesisChoiceSentence(r),
 		chosenSentence(r, "Standard errors of predicted probabilities and marginal effects use the delta method: they are first-order approximations."),
 		multiplicitySentence(r),
-		limitIf(len(r.Sensitivity) > 0, sensitivityLimit),
+		limitIf(len(r.Sensitivity) > 0, sensitivityLimit(r)),
 	}
 	d.list(slices.DeleteFunc(items, func(s string) bool { return s == "" }))
 }

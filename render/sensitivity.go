@@ -12,9 +12,64 @@ import (
 )
 
 // sensitivityLimit is what the report says of every set of sensitivity
-// analyses: they are the ones fixed in advance, and their agreement
-// shows no robustness beyond them.
-const sensitivityLimit = "The sensitivity analyses shown are those the plan fixed in advance, and only those. Agreement between them shows that the choice and the estimates did not move under the changes tried; it is not proof that the results are robust to changes not tried (other subsets of rows, other models or predictors, another handling of missing values, data missing not at random, confounding)."
+// analyses: they are the ones fixed in advance, and their agreement shows
+// no robustness beyond them; an analysis whose estimates are the primary
+// analysis's by construction (errorsOnlyNames) is not counted as
+// agreement.
+func sensitivityLimit(r *runner.Result) string {
+	const head = "The sensitivity analyses shown are those the plan fixed in advance, and only those. "
+	const moved = "the choice and the estimates did not move under the changes tried; it is not proof that the results are robust to changes not tried (other subsets of rows, other models or predictors, another handling of missing values, data missing not at random, confounding)."
+	eo := errorsOnlyNames(r)
+	if len(eo) == 0 {
+		return head + "Agreement between them shows that " + moved
+	}
+	one := fmt.Sprintf("The analysis %s changes only how the standard errors are computed, on the same rows, so its estimates are the primary analysis's by construction, and so is its choice but for decisions that read the covariance: its agreement is not evidence, and only its standard errors and intervals (and such decisions) are informative.", strings.Join(eo, ", "))
+	if len(eo) > 1 {
+		one = fmt.Sprintf("The analyses %s change only how the standard errors are computed, on the same rows, so their estimates are the primary analysis's by construction, and so are their choices but for decisions that read the covariance: their agreement is not evidence, and only their standard errors and intervals (and such decisions) are informative.", strings.Join(eo, ", "))
+	}
+	if len(eo) == len(r.Sensitivity) {
+		return head + one + " They are not proof that the results are robust to other changes (other subsets of rows, other models or predictors, another handling of missing values, data missing not at random, confounding)."
+	}
+	return head + one + " Agreement between the others and the primary analysis shows that " + moved
+}
+
+// errorsOnlyNames are the sensitivity analyses whose estimates are the
+// primary analysis's by construction for every outcome
+// (runner.ErrorsOnly), in the plan's order.
+func errorsOnlyNames(r *runner.Result) []string {
+	var out []string
+	for _, sr := range r.Sensitivity {
+		all := len(r.Outcomes) > 0
+		for _, or := range r.Outcomes {
+			ok, _ := runner.ErrorsOnly(r, sr, or.Outcome.Column)
+			all = all && ok
+		}
+		if all {
+			out = append(out, mdText(sr.Sensitivity.Name))
+		}
+	}
+	return out
+}
+
+// errorsOnlyNote is what the report says, for one outcome, of an analysis
+// whose estimates are the primary analysis's by construction
+// (runner.ErrorsOnly): only its errors and intervals, and the decisions
+// that read the covariance, are informative; "" for another analysis.
+func errorsOnlyNote(r *runner.Result, sr *runner.SensitivityResult, column string) string {
+	ok, readers := runner.ErrorsOnly(r, sr, column)
+	if !ok {
+		return ""
+	}
+	var keys []string
+	for _, c := range sr.Sensitivity.Changes {
+		keys = append(keys, mdCode(c))
+	}
+	s := fmt.Sprintf("**%s** changes only how the standard errors are computed (%s), on the same rows: the fits maximise the same likelihood, so its estimates are the primary analysis's by construction", mdText(sr.Sensitivity.Name), strings.Join(keys, ", "))
+	if len(readers) == 0 {
+		return s + ", and so is its choice, as no rule reads the covariance. Its agreement with the primary analysis is not evidence of robustness: only its standard errors and intervals are informative."
+	}
+	return s + fmt.Sprintf("; its choice can differ only through the decisions that read the covariance (%s). Only its standard errors and intervals, and those decisions, are informative: agreement otherwise is not evidence of robustness.", strings.Join(readers, "; "))
+}
 
 // writeSensitivity writes the section of the plan's sensitivity analyses:
 // what each changes and why, the model its rules chose beside the primary
@@ -26,7 +81,7 @@ func writeSensitivity(d *doc, r *runner.Result) {
 		return
 	}
 	d.h(2, "Sensitivity analyses")
-	d.p("Each sensitivity analysis below is the primary plan with the change listed, checked as a whole plan and run on the same data through the same candidate models and decision rules (its inference beyond the estimates, such as hypotheses and marginal effects, is not run). %s", sensitivityLimit)
+	d.p("Each sensitivity analysis below is the primary plan with the change listed, checked as a whole plan and run on the same data through the same candidate models and decision rules (its inference beyond the estimates, such as hypotheses and marginal effects, is not run). %s", sensitivityLimit(r))
 	var rows [][]string
 	for _, sr := range r.Sensitivity {
 		s := sr.Sensitivity
@@ -105,6 +160,11 @@ func writeSensitivityOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult,
 		rows = append(rows, []string{sr.Sensitivity.Name, fmt.Sprint(sor.AsRead().N), chosen, same})
 	}
 	d.captioned("The model the rules chose under each analysis, "+or.Outcome.Column).table([]string{"Analysis", "Rows used", "Model chosen", "The primary analysis's choice"}, rows)
+	for _, sr := range r.Sensitivity {
+		if n := errorsOnlyNote(r, sr, or.Outcome.Column); n != "" {
+			d.p("%s", n)
+		}
+	}
 	if or.Chosen == nil {
 		d.p("The primary analysis chose no model, so there are no estimates to compare.")
 		return
@@ -176,6 +236,9 @@ func sensitivitySummary(r *runner.Result) string {
 		}
 	}
 	s := fmt.Sprintf("**Sensitivity analyses** fixed in the plan: %d; under %d of the %d run the rules chose the primary analysis's model for every outcome (see Sensitivity analyses: the changes tried, and only those).", len(r.Sensitivity), same, ran)
+	if eo := errorsOnlyNames(r); len(eo) > 0 {
+		s += fmt.Sprintf(" The agreement of %s is by construction, not evidence: changing only the standard errors, it keeps the primary analysis's estimates, and its choice but for decisions that read the covariance; only its errors and intervals are informative.", strings.Join(eo, ", "))
+	}
 	if ran < len(r.Sensitivity) {
 		s += fmt.Sprintf(" **%d could not be run.**", len(r.Sensitivity)-ran)
 	}

@@ -3,6 +3,7 @@ package runner
 import (
 	"fmt"
 	"path/filepath"
+	"slices"
 	"strings"
 
 	"ordplan/plan"
@@ -232,4 +233,61 @@ func SensitivityWarnings(r *Result) []string {
 		}
 	}
 	return out
+}
+
+// ErrorsOnlyKeys are the keys of a sensitivity analysis that change only
+// how the standard errors are computed (plan.SensitivityKeys): the
+// covariance, the clusters and the few-cluster correction. The fits
+// maximise the same likelihood on the same rows whatever they are (the
+// information a fit's own errors come from, observed or expected,
+// aside).
+var ErrorsOnlyKeys = []string{"covariance", "data.cluster", "few_clusters"}
+
+// ErrorsOnly says whether, for one outcome, a sensitivity analysis's
+// estimates are the primary analysis's by construction: it changes only
+// ErrorsOnlyKeys, its fits use the same information as the primary's
+// (observed or expected, which the condition of a fit and its
+// identification read) and it uses the same rows (a cluster column with
+// missing values may drop some). When it holds, readers lists the
+// decisions of the analysis that read the covariance, and so may still
+// differ from the primary's: a Wald-test rule, a stepwise selection by
+// Wald tests, the rejection of a model whose robust covariance cannot be
+// computed; with none, the choice too is the primary's by construction.
+func ErrorsOnly(primary *Result, sr *SensitivityResult, column string) (ok bool, readers []string) {
+	if sr.Result == nil || primary.Analysis == nil || sr.Result.Analysis == nil {
+		return false, nil
+	}
+	for _, c := range sr.Sensitivity.Changes {
+		if !slices.Contains(ErrorsOnlyKeys, c) {
+			return false, nil
+		}
+	}
+	pa, sa := primary.Analysis, sr.Result.Analysis
+	if pa.Fit.Covariance != sa.Fit.Covariance {
+		return false, nil
+	}
+	var por, sor *OutcomeResult
+	for _, or := range primary.Outcomes {
+		if or.Outcome.Column == column {
+			por = or
+		}
+	}
+	sor = sr.Outcome(column)
+	if por == nil || sor == nil || por.AsRead() == nil || sor.AsRead() == nil || por.AsRead().N != sor.AsRead().N {
+		return false, nil
+	}
+	// Decisions that read the covariance, under either analysis (the
+	// rules and the selection are the primary's in every analysis).
+	for _, r := range sa.Rules {
+		if r.Kind == plan.RuleRejectIfTestRejects && r.Test == fit.TestWald {
+			readers = append(readers, fmt.Sprintf("the Wald-test rule at line %d", r.Line))
+		}
+	}
+	if sel := sa.Models.Partial.Select; sel != nil && sel.Test == fit.TestWald {
+		readers = append(readers, "the stepwise selection of the partial set by Wald tests")
+	}
+	if sa.Errors.Covariance.IsSandwich() || pa.Errors.Covariance.IsSandwich() {
+		readers = append(readers, "the rejection of a model whose robust covariance cannot be computed")
+	}
+	return true, readers
 }

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/json"
 	"fmt"
+	"math"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
@@ -49,19 +50,19 @@ const sensitivitySection = `sensitivity:
 
 // sensitivityData writes sens.csv: 300 rows of the report's invented
 // survey (testsurvey.Report), x2 missing in about one row in eight, each
-// row at one of three sites.
+// row at one of three sites and in one of 12 districts.
 func sensitivityData(t *testing.T, dir string) {
 	t.Helper()
 	rng := rand.New(rand.NewPCG(20261205, 3))
 	var b strings.Builder
-	b.WriteString("y,x1,x2,site\n")
+	b.WriteString("y,x1,x2,site,district\n")
 	for i := 0; i < 300; i++ {
 		y, x1, x2 := testsurvey.Report.Row(rng)
 		x2s := strconv.FormatFloat(x2, 'f', 4, 64)
 		if rng.IntN(8) == 0 {
 			x2s = "NA"
 		}
-		fmt.Fprintf(&b, "%d,%.4f,%s,s%d\n", y, x1, x2s, 1+i%3)
+		fmt.Fprintf(&b, "%d,%.4f,%s,s%d,d%d\n", y, x1, x2s, 1+i%3, i%12)
 	}
 	if err := os.WriteFile(filepath.Join(dir, "sens.csv"), []byte(b.String()), 0o644); err != nil {
 		t.Fatal(err)
@@ -199,6 +200,7 @@ func TestSensitivityAnalysesAsSeparatePlans(t *testing.T) {
 	}
 	for _, w := range []string{"## Sensitivity analyses", "The sensitivity analyses shown are those the plan fixed in advance, and only those.",
 		"it is not proof that the results are robust to changes not tried", "The plan fixed 2 sensitivity analyses in advance",
+		"Agreement between them shows that the choice and the estimates did not move", // no analysis changes only the errors
 		"`data.missing`: `\"drop\"` → `\"impute\"`"} {
 		if !bytes.Contains(report, []byte(w)) {
 			t.Errorf("report.md lacks %q", w)
@@ -231,4 +233,63 @@ func TestSensitivityThroughQueue(t *testing.T) {
 	local, remote, r := runHereAndQueued(t, plan, 2)
 	t.Logf("through the queue:\n%s", r[1])
 	sameOutputs(t, local, remote)
+}
+
+// An analysis that changes only the errors (clusters and covariance) on
+// the same rows has the primary analysis's estimates by construction (the
+// fits do not read the covariance): the report says that only its errors
+// and intervals, and the decisions that read the covariance (a Wald-test
+// rule, named), are informative, and does not count it as agreement.
+func TestSensitivityErrorsOnly(t *testing.T) {
+	dir := t.TempDir()
+	sensitivityData(t, dir)
+	section := `sensitivity:
+  - name: clustered
+    why: Rows of a district share it.
+    change:
+      data.cluster: district
+      covariance: clustered
+`
+	for _, tc := range []struct {
+		name, rules, want string
+	}{
+		{"lr", "", "its choice can differ only through the decisions that read the covariance (the rejection of a model whose robust covariance cannot be computed)."},
+		{"wald", "  - reject_if_test_rejects: {test: wald, alpha: 0.05}\n", "(the Wald-test rule at line 15; the rejection of a model whose robust covariance cannot be computed)"},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			src := strings.Replace(sensitivityPlan, "  - choose: {by: bic}\n", tc.rules+"  - choose: {by: bic}\n", 1) + section
+			plan := writeIn(t, dir, tc.name+".yaml", src)
+			out := filepath.Join(dir, tc.name)
+			if stdout, stderr, code := runCLI("run", plan, "--out", out, "--quiet"); code != 0 {
+				t.Fatalf("exit %d: %s %s", code, stdout, stderr)
+			}
+			report, _ := os.ReadFile(filepath.Join(out, "report.md"))
+			for _, w := range []string{
+				"**clustered** changes only how the standard errors are computed (`data.cluster`, `covariance`), on the same rows",
+				"its estimates are the primary analysis's by construction", tc.want,
+				"The analysis clustered changes only how the standard errors are computed",
+				"The agreement of clustered is by construction, not evidence",
+			} {
+				if !bytes.Contains(report, []byte(w)) {
+					t.Errorf("report.md lacks %q", w)
+				}
+			}
+			if bytes.Contains(report, []byte("Agreement between them shows")) {
+				t.Error("report.md counts the errors-only analysis as agreement")
+			}
+			// The claim itself: the same estimates as the primary's fit.
+			d := readSensDecisions(t, out)
+			primary := *d.Outcomes[0].Chosen
+			for _, f := range d.Outcomes[0].Fits {
+				if f.ID != primary {
+					continue
+				}
+				for _, e := range d.Sensitivity[0].Outcomes[0].PrimaryModel.Estimates {
+					if math.Abs(e.Estimate-f.Estimates[e.Parameter]) > 1e-8*(1+math.Abs(e.Estimate)) {
+						t.Errorf("%s: %v under clustered errors, %v in the primary analysis", e.Parameter, e.Estimate, f.Estimates[e.Parameter])
+					}
+				}
+			}
+		})
+	}
 }
