@@ -147,56 +147,102 @@ func writeSummary(d *doc, r *runner.Result) {
 }
 
 // chosenChecks says, for the Summary, which of the chosen model's own
-// checks reject it at the plan's alpha: the nested likelihood-ratio tests
-// in which it is the restricted model, and the goodness-of-fit tests
-// (Lipsitz, Pulkstenis-Robinson); then what the plan's test rules tested
-// it against, which is all that entered the choice. "" when no check
-// rejects it.
+// checks reject it at the report's alpha (tests.alpha): the nested
+// likelihood-ratio tests in which it is the restricted model, and the
+// goodness-of-fit tests (Lipsitz, Pulkstenis-Robinson); then what the
+// plan's test rules tested it against, at their own alpha, which is all
+// that entered the choice. A nested comparison that a likelihood-ratio
+// rule made itself is not counted among the checks the choice did not
+// use: it is said to be the rule's, at the rule's alpha. Under clustered
+// errors or sampling weights the likelihood-ratio checks are qualified.
+// "" when no check rejects it.
 func chosenChecks(r *runner.Result, or *runner.OutcomeResult) string {
 	alpha := r.Plan.Tests.Alpha
-	var rejects []string
-	add := func(what string, t fit.Test) {
-		if t.OK && t.P < alpha {
-			rejects = append(rejects, fmt.Sprintf("%s (%s, %s)", what, runner.TestStatistic(t), numfmt.PText(t.P)))
-		}
-	}
-	for _, tb := range or.Tests {
-		for _, nt := range tb.Nested {
-			if nt.Restricted == or.Chosen.ID {
-				add("the nested likelihood-ratio test against "+nt.Full, nt.Test)
-			}
-		}
-	}
-	if or.Lipsitz != nil {
-		add("the Lipsitz goodness-of-fit test", or.Lipsitz.Test)
-	}
-	if ps := or.PatternSplit; ps != nil && ps.PatternSplit != nil {
-		add("the Pulkstenis-Robinson Pearson test", ps.Pearson)
-		add("the Pulkstenis-Robinson deviance test", ps.Deviance)
-	}
-	if len(rejects) == 0 {
-		return ""
-	}
-	out := fmt.Sprintf(" **Checks of this model shown in the report reject it at alpha %g:** %s.", alpha, strings.Join(rejects, "; "))
+	// The test rules' verdicts on the chosen model, and the comparisons
+	// the likelihood-ratio rules made (by the less constrained model).
 	var rules []string
+	var ruleAlphas []string
+	madeBy := map[string]bool{}
 	for _, ro := range or.Rules {
 		if ro.Rule.Kind != plan.RuleRejectIfTestRejects {
 			continue
 		}
 		for _, v := range ro.Verdicts {
-			if v.Model == or.Chosen.ID {
-				verdict := "kept"
-				if !v.Kept {
-					verdict = "rejected"
+			if v.Model != or.Chosen.ID {
+				continue
+			}
+			verdict := "kept"
+			if !v.Kept {
+				verdict = "rejected"
+			}
+			rules = append(rules, fmt.Sprintf("`%s` (plan line %d) tests a model against %s only, as the rule says, at its alpha %g, and %s it: %s", ro.Rule.Kind, ro.Rule.Line, againstWords(ro.Rule.Against), ro.Rule.Alpha, verdict, strings.TrimSuffix(v.Reason, ".")))
+			if a := fmt.Sprintf("%g", ro.Rule.Alpha); ro.Rule.Alpha != alpha && !slices.Contains(ruleAlphas, a) {
+				ruleAlphas = append(ruleAlphas, a)
+			}
+			if ro.Rule.Test != fit.TestLR {
+				continue
+			}
+			for _, tb := range or.Tests {
+				for _, nt := range tb.Nested {
+					if _, ok := v.Numbers[runner.NumberKey("p against "+nt.Full)]; ok && nt.Restricted == or.Chosen.ID {
+						madeBy[nt.Full] = true
+					}
 				}
-				rules = append(rules, fmt.Sprintf("`%s` (plan line %d) tests a model against %s only, as the rule says, and %s it: %s", ro.Rule.Kind, ro.Rule.Line, againstWords(ro.Rule.Against), verdict, strings.TrimSuffix(v.Reason, ".")))
 			}
 		}
 	}
-	if len(rules) > 0 {
+	var rejects, ruleMade []string
+	lrShown := false
+	add := func(list *[]string, what string, t fit.Test) bool {
+		if t.OK && t.P < alpha {
+			*list = append(*list, fmt.Sprintf("%s (%s, %s)", what, runner.TestStatistic(t), numfmt.PText(t.P)))
+			return true
+		}
+		return false
+	}
+	for _, tb := range or.Tests {
+		for _, nt := range tb.Nested {
+			if nt.Restricted != or.Chosen.ID {
+				continue
+			}
+			list := &rejects
+			if madeBy[nt.Full] {
+				list = &ruleMade
+			}
+			lrShown = add(list, "the nested likelihood-ratio test against "+nt.Full, nt.Test) || lrShown
+		}
+	}
+	if or.Lipsitz != nil {
+		add(&rejects, "the Lipsitz goodness-of-fit test", or.Lipsitz.Test)
+	}
+	if ps := or.PatternSplit; ps != nil && ps.PatternSplit != nil {
+		add(&rejects, "the Pulkstenis-Robinson Pearson test", ps.Pearson)
+		add(&rejects, "the Pulkstenis-Robinson deviance test", ps.Deviance)
+	}
+	if len(rejects) == 0 && len(ruleMade) == 0 {
+		return ""
+	}
+	ruleAlpha := ""
+	if len(ruleAlphas) > 0 {
+		ruleAlpha = "; the test rule used " + strings.Join(ruleAlphas, " and ")
+	}
+	out := ""
+	if len(rejects) > 0 {
+		out = fmt.Sprintf(" **Checks of this model shown in the report reject it at the report's alpha %g%s:** %s.", alpha, ruleAlpha, strings.Join(rejects, "; "))
+	}
+	switch {
+	case len(rules) > 0 && len(rejects) > 0:
 		out += fmt.Sprintf(" The choice did not use them: the plan's test rule %s.", strings.Join(rules, "; and "))
-	} else {
+	case len(rules) > 0:
+		out += fmt.Sprintf(" The plan's test rule %s.", strings.Join(rules, "; and "))
+	default:
 		out += " No rule of the plan uses these tests, so they did not enter the choice."
+	}
+	if len(ruleMade) > 0 {
+		out += fmt.Sprintf(" At the report's alpha %g %s also rejects it; the test rule made that comparison itself, at its own alpha%s.", alpha, strings.Join(ruleMade, " and "), strings.TrimPrefix(ruleAlpha, "; the test rule used"))
+	}
+	if a := r.Analysis; lrShown && a != nil && (a.Errors.Covariance == fit.Clustered || a.Errors.Sampling) {
+		out += " The likelihood-ratio tests take the rows as independent: with clustered errors or sampling weights they reject too often when observations are alike within a cluster or the weights matter, so their p-values are too small."
 	}
 	return out + " Read the estimates with this in mind."
 }

@@ -87,7 +87,7 @@ func TestTermTestsRendered(t *testing.T) {
 }
 
 // TestSummaryNamesFailedChecks: the Summary names the chosen model's own
-// checks that reject it at the plan's alpha (a nested likelihood-ratio
+// checks that reject it at the report's alpha (a nested likelihood-ratio
 // test in which it is the restricted model, the Lipsitz test), and says
 // that the plan's test rule tested it against the least constrained model
 // only; nothing is said when every check passes. The p-values are set
@@ -131,11 +131,22 @@ func TestSummaryNamesFailedChecks(t *testing.T) {
 	nt := &or.Tests[0].Nested[nested]
 	nt.Test.P = 0.0011
 	s := summary(string(outputsOf(t, res)["report.md"]))
+	// The rule (lr, alpha 0.001, against the least constrained model)
+	// made the comparison with nt.Full itself: it is not among the checks
+	// the choice did not use, but said to be the rule's, at its alpha.
 	hasAll(t, "Summary", s,
-		"**Checks of this model shown in the report reject it at alpha 0.05:** the nested likelihood-ratio test against "+nt.Full+" (chi2(",
-		"p = 0.0011); the Lipsitz goodness-of-fit test (chi2(",
+		"**Checks of this model shown in the report reject it at the report's alpha 0.05; the test rule used 0.001:** the Lipsitz goodness-of-fit test (chi2(",
 		"p = 0.0074). The choice did not use them: the plan's test rule `reject_if_test_rejects` (plan line ",
-		") tests a model against the least constrained model of its approach and link only, as the rule says, and kept it: ")
+		") tests a model against the least constrained model of its approach and link only, as the rule says, at its alpha 0.001, and kept it: ",
+		"At the report's alpha 0.05 the nested likelihood-ratio test against "+nt.Full+" (chi2(",
+		"p = 0.0011) also rejects it; the test rule made that comparison itself, at its own alpha 0.001.")
+	if strings.Contains(s, "reject it at the report's alpha 0.05; the test rule used 0.001:** the nested") {
+		t.Errorf("the Summary counts the rule's own comparison among the checks the choice did not use:\n%s", s)
+	}
+	// Under clustered errors the likelihood-ratio check is qualified.
+	res.Analysis.Errors.Covariance = fit.Clustered
+	s = summary(string(outputsOf(t, res)["report.md"]))
+	hasAll(t, "Summary (clustered)", s, "The likelihood-ratio tests take the rows as independent: with clustered errors or sampling weights they reject too often")
 }
 
 // TestTermTestsRobustReading: under sandwich or clustered errors, or

@@ -1077,7 +1077,7 @@ func (env *ruleEnv) choose(r plan.Rule, alive []*FitEntry, ro *RuleOutcome) {
 	tied = append([]*FitEntry{chosen}, slices.DeleteFunc(slices.Clone(tied), func(f *FitEntry) bool { return f == chosen })...)
 	for _, f := range usable {
 		c := crit(f)
-		v := Verdict{Model: f.ID, Numbers: map[string]float64{r.By: c, numberKey("smallest " + r.By): best, "margin": r.Margin, "parameters": float64(f.Result.NParams)}}
+		v := Verdict{Model: f.ID, Numbers: map[string]float64{r.By: c, NumberKey("smallest " + r.By): best, "margin": r.Margin, "parameters": float64(f.Result.NParams)}}
 		if r.By == "tic" {
 			if _, pen, err := env.cachedTIC(f); err == nil {
 				v.Numbers["tic_penalty"] = pen
@@ -1213,14 +1213,14 @@ func (env *ruleEnv) cachedTIC(f *FitEntry) (float64, float64, error) {
 // NaN); the verdict's text gives the same number.
 func (env *ruleEnv) num(name string, v float64) {
 	if env.nums != nil && !math.IsNaN(v) && !math.IsInf(v, 0) {
-		env.nums[numberKey(name)] = v
+		env.nums[NumberKey(name)] = v
 	}
 }
 
-// numberKey writes the name of a verdict's number as a snake_case key of
+// NumberKey writes the name of a verdict's number as a snake_case key of
 // decisions.json: "chi2 against cumulative/nonparallel/logit" becomes
 // "chi2_against_cumulative_nonparallel_logit".
-func numberKey(name string) string {
+func NumberKey(name string) string {
 	r := []rune(strings.ToLower(name))
 	for i, c := range r {
 		if !(c >= 'a' && c <= 'z' || c >= '0' && c <= '9') {
