@@ -152,6 +152,9 @@ func (r *reader) fastLines(p *fastPlan, c *chunk, lr *lineRecords) {
 		fails++
 	}
 	for pos < len(s) {
+		if r.mayRepeatHeader(s, pos, p.delim) {
+			break // the general way decides (record: repeatsHeader)
+		}
 		n := len(d.X)
 		x := d.X[n : n+K]
 		next, ok := 0, false
@@ -209,6 +212,28 @@ func (r *reader) fastLines(p *fastPlan, c *chunk, lr *lineRecords) {
 		pos = next
 	}
 	lr.pos, lr.line = pos, line
+}
+
+// mayRepeatHeader reports whether the line from s[i] may repeat the
+// header: its first field, spaces aside, is the header's first name (the
+// one comparison a row costs the general way too, repeatsHeader). Such a
+// line goes the general way, which refuses it if every named column
+// repeats its name, so that a repeated header is refused on every path
+// (its cells may all read as valid values: the outcome's category "y",
+// a level "g").
+func (r *reader) mayRepeatHeader(s string, i int, delim byte) bool {
+	if len(r.headerNames) == 0 {
+		return false
+	}
+	for i < len(s) && (s[i] == ' ' || s[i] == '\t') {
+		i++
+	}
+	name := r.headerNames[0]
+	if !strings.HasPrefix(s[i:], name) {
+		return false
+	}
+	i += len(name)
+	return i == len(s) || s[i] == delim || s[i] == ' ' || s[i] == '\t' || s[i] == '\r' || s[i] == '\n'
 }
 
 // fastRow reads the line s[i:hi] the fast way into row (its predictor

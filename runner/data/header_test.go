@@ -110,6 +110,17 @@ func TestHeaderRepeated(t *testing.T) {
 	if _, err := ProfileFile(path, []string{""}, Dialect{}); err == nil || !strings.Contains(err.Error(), want[len("d.csv"):]) {
 		t.Errorf("profile: %v", err)
 	}
+	// A repeated header whose every cell reads as a valid value (the
+	// outcome's category "y", the level "g"): refused on the fast way
+	// (no subset) as on the general way.
+	valid := []byte("y,g\nlo,a\ny,g\n  y,g\nlo,g\n")
+	for _, keep := range [][]Condition{nil, {{Column: "g", Op: "not_in", Values: []string{"zz"}, Key: "subset[0]"}}} {
+		opt := Options{Outcome: "y", Categories: []string{"lo", "y"}, Predictors: []string{"g"}, PredictorLevels: map[string][]string{"g": {"a", "g"}}, MissingTokens: []string{""}, Keep: keep}
+		const want = `d.csv:3: this line repeats the header (y,g) of line 1`
+		if _, err := readBytes(valid, "d.csv", opt); err == nil || !strings.Contains(err.Error(), want) {
+			t.Errorf("valid cells, subset %v: %v, want %q", keep, err, want)
+		}
+	}
 	part := []byte("y,a,g\n1,0.5,n\n2,1.5,s\ny,a,x\n")
 	if _, err := readBytes(part, "d.csv", Options{Outcome: "y", Predictors: []string{"a"}, MissingTokens: []string{""}}); err == nil || strings.Contains(err.Error(), "repeats the header") {
 		t.Errorf("a line repeating two of three names: %v", err)
