@@ -96,6 +96,13 @@ func writeSensitivity(d *doc, r *runner.Result) {
 		if sr.Err != "" {
 			d.p("**The sensitivity analysis %s could not be run:** %s", mdText(sr.Sensitivity.Name), mdText(sr.Err))
 		}
+		if ws := sr.Warnings(r); len(ws) > 0 {
+			d.p("**Warnings of the sensitivity analysis %s** (beyond those of the primary analysis; `ordplan run` prints them too):", mdText(sr.Sensitivity.Name))
+			for i, w := range ws {
+				ws[i] = mdText(w)
+			}
+			d.list(ws)
+		}
 	}
 	level, _ := confidence(r)
 	for _, or := range r.Outcomes {

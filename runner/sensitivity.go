@@ -224,12 +224,55 @@ func sensitivityRunRecords(r *Result) []SensitivityRunRecord {
 }
 
 // SensitivityWarnings are the lines ordplan run prints on standard error
-// for the sensitivity analyses that could not be run.
+// for the sensitivity analyses: those that could not be run, and each
+// warning of an analysis that ran (SensitivityResult.Warnings), named by
+// the analysis.
 func SensitivityWarnings(r *Result) []string {
 	var out []string
 	for _, sr := range r.Sensitivity {
 		if sr.Err != "" {
 			out = append(out, fmt.Sprintf("%s could not be run: %s", sr.Sensitivity.Title(), sr.Err))
+		}
+		for _, w := range sr.Warnings(r) {
+			out = append(out, fmt.Sprintf("sensitivity analysis %s: %s", sr.Sensitivity.Name, w))
+		}
+	}
+	return out
+}
+
+// runWarnings are the warnings of a run that ordplan run prints once the
+// data are read, as it words them: rules or a stepwise selection that
+// read statistics ignoring the clusters (ClusterWarnings), two-category
+// outcomes (BinaryWarnings, those the data found), categorical
+// predictors held at their reference in pairs of levels
+// (PairsProfileWarnings), too few clusters and what follows from them
+// (FewClustersWarnings).
+func runWarnings(res *Result) []string {
+	found := make([]int, len(res.Plan.Outcomes))
+	for i, or := range res.Outcomes {
+		if i < len(found) && or.Data != nil {
+			found[i] = len(or.Data.Categories)
+		}
+	}
+	return slices.Concat(ClusterWarnings(res.Plan), BinaryWarnings(res.Plan, nil), BinaryWarnings(res.Plan, found), PairsProfileWarnings(res.Plan), FewClustersWarnings(res))
+}
+
+// Warnings are the warnings of a sensitivity analysis that ran (none when
+// it did not) that the primary analysis (primary) does not have as well:
+// too few clusters for its clustered errors, singular covariances, rules
+// that ignore its clusters, ... (runWarnings), in its order.
+func (sr *SensitivityResult) Warnings(primary *Result) []string {
+	if sr.Result == nil {
+		return nil
+	}
+	var had []string
+	if primary.Plan != nil {
+		had = runWarnings(primary)
+	}
+	var out []string
+	for _, w := range runWarnings(sr.Result) {
+		if !slices.Contains(had, w) && !slices.Contains(out, w) {
+			out = append(out, w)
 		}
 	}
 	return out

@@ -239,7 +239,8 @@ func TestSensitivityThroughQueue(t *testing.T) {
 // the same rows has the primary analysis's estimates by construction (the
 // fits do not read the covariance): the report says that only its errors
 // and intervals, and the decisions that read the covariance (a Wald-test
-// rule, named), are informative, and does not count it as agreement.
+// rule, named), are informative, and does not count it as agreement. Its
+// warnings (too few clusters) are printed and reported, named by it.
 func TestSensitivityErrorsOnly(t *testing.T) {
 	dir := t.TempDir()
 	sensitivityData(t, dir)
@@ -260,10 +261,20 @@ func TestSensitivityErrorsOnly(t *testing.T) {
 			src := strings.Replace(sensitivityPlan, "  - choose: {by: bic}\n", tc.rules+"  - choose: {by: bic}\n", 1) + section
 			plan := writeIn(t, dir, tc.name+".yaml", src)
 			out := filepath.Join(dir, tc.name)
-			if stdout, stderr, code := runCLI("run", plan, "--out", out, "--quiet"); code != 0 {
+			stdout, stderr, code := runCLI("run", plan, "--out", out, "--quiet")
+			if code != 0 {
 				t.Fatalf("exit %d: %s %s", code, stdout, stderr)
 			}
 			report, _ := os.ReadFile(filepath.Join(out, "report.md"))
+			// The analysis's own warnings (12 districts, fewer than 40),
+			// on the console named by it and in its section.
+			few := `outcome y: data.cluster: column "district" holds 12 clusters in the`
+			if !strings.Contains(stderr, "sensitivity analysis clustered: "+few) {
+				t.Errorf("stderr lacks the analysis's few-clusters warning:\n%s", stderr)
+			}
+			if !bytes.Contains(report, []byte("**Warnings of the sensitivity analysis clustered**")) || !bytes.Contains(report, []byte("- "+few)) {
+				t.Error("report.md lacks the analysis's warnings")
+			}
 			for _, w := range []string{
 				"**clustered** changes only how the standard errors are computed (`data.cluster`, `covariance`), on the same rows",
 				"its estimates are the primary analysis's by construction", tc.want,
