@@ -182,6 +182,15 @@ func countsChange(p, o OutcomeDecisions) string {
 	return fmt.Sprintf("counts per category %s (was %s)", strings.Join(now, ", "), strings.Join(was, ", "))
 }
 
+// roundingOnly reports whether a chosen model's fits in the earlier run
+// (p, log-likelihood llp) and this one (o, llo) can differ by rounding
+// alone: the same rows used and counts per category, and log-likelihoods
+// equal to 1e-9 of their size (summing the same rows in another order
+// moves them by far less; a changed value moves them by far more).
+func roundingOnly(p, o OutcomeDecisions, llp, llo float64) bool {
+	return p.RowsUsed == o.RowsUsed && slices.Equal(p.Counts, o.Counts) && math.Abs(llp-llo) <= 1e-9*math.Max(1, math.Abs(llp))
+}
+
 // chosenChanges says, for a model chosen in both runs, how far its
 // estimates moved (the largest change in the earlier run's standard
 // errors, with the parameter) and which of the plan's hypotheses tested
@@ -210,10 +219,15 @@ func chosenChanges(outcome, id string, p, o OutcomeDecisions) []string {
 		}
 	}
 	switch {
-	case worst > 0 && numfmt.Fixed(worst, 3) == "0.000":
+	case worst > 0 && numfmt.Fixed(worst, 3) == "0.000" && roundingOnly(p, o, *pf.LogLik, *of.LogLik):
 		// Rounding alone (the same rows summed in another order): no
 		// estimate moves at the digits written.
 		out = append(out, fmt.Sprintf("%s: %s, chosen in both runs: its estimates moved by less than 0.001 standard errors (of the earlier run), in the last digits only.", outcome, id))
+	case worst > 0 && numfmt.Fixed(worst, 3) == "0.000":
+		// A real change of the data too small to show at the digits
+		// written: not rounding, which the log-likelihood tells.
+		out = append(out, fmt.Sprintf("%s: %s, chosen in both runs: its estimates moved by less than 0.001 standard errors (of the earlier run); log-likelihood %s -> %s.",
+			outcome, id, numfmt.Num(*pf.LogLik), numfmt.Num(*of.LogLik)))
 	case worst > 0:
 		out = append(out, fmt.Sprintf("%s: %s, chosen in both runs: its estimates moved by at most %s standard errors (of the earlier run), the most %s (%s -> %s); log-likelihood %s -> %s.",
 			outcome, id, numfmt.Fixed(worst, 3), at, numfmt.Est(pf.Estimates[at]), numfmt.Est(of.Estimates[at]), numfmt.Fixed(*pf.LogLik, 3), numfmt.Fixed(*of.LogLik, 3)))

@@ -204,3 +204,29 @@ func TestRecordChangesNamesEachInput(t *testing.T) {
 		t.Errorf("a plan frozen since: %q", got)
 	}
 }
+
+// A move under 0.001 standard errors is "in the last digits only" when it
+// can be rounding alone (the same rows and counts, the log-likelihood the
+// same to 1e-9); a real change of the data that moves the estimates as
+// little is not called rounding: the log-likelihoods are given instead.
+// Expected by hand: b moves 1e-5 with se 0.1, i.e. 1e-4 standard errors.
+func TestChosenChangesRoundingOrTinyChange(t *testing.T) {
+	mk := func(ll float64, rows int) OutcomeDecisions {
+		return OutcomeDecisions{RowsUsed: rows, Counts: []float64{4, 6}, Fits: []FitDecision{{ID: "m", FitRecord: FitRecord{LogLik: &ll,
+			Estimates: map[string]float64{"b": 1}, StdErrors: map[string]float64{"b": 0.1}}}}}
+	}
+	moved := func(ll float64, rows int) OutcomeDecisions {
+		o := mk(ll, rows)
+		o.Fits[0].Estimates = map[string]float64{"b": 1.00001}
+		return o
+	}
+	if lines := chosenChanges("y", "m", mk(-100, 10), moved(-100-1e-12, 10)); len(lines) != 1 || !strings.HasSuffix(lines[0], "in the last digits only.") {
+		t.Errorf("rounding: %q", lines)
+	}
+	for name, now := range map[string]OutcomeDecisions{"value changed": moved(-100.25, 10), "row added": moved(-100-1e-12, 11)} {
+		lines := chosenChanges("y", "m", mk(-100, 10), now)
+		if len(lines) != 1 || strings.Contains(lines[0], "last digits") || !strings.Contains(lines[0], "less than 0.001 standard errors (of the earlier run); log-likelihood -100 -> ") {
+			t.Errorf("%s: %q", name, lines)
+		}
+	}
+}
