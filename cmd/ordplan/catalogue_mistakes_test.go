@@ -39,6 +39,8 @@ func mistakeItems(dir string) []badInput {
 		{id: "A31", name: "power --workers 0", args: []string{"power", "--n", "100", "--workers", "0", "--out", filepath.Join(dir, "A31-power")}, plan: edit() + assumed("{a: 0.2}", ""), code: 2, lines: true,
 			want:  []string{`invalid value "0" for flag -workers: want a whole number of 1 or more`},
 			check: noFolder("A31-power")},
+		{id: "A32", name: "help given more than one word", args: []string{"help", "run", "--bogus"}, code: 2,
+			want: []string{"ordplan help: give one command or topic, not 2 (run --bogus); for a command's flags: ordplan help run"}},
 		{id: "O13", name: "an empty --previous", args: []string{"run", "--previous="}, plan: goodPlan, code: 2,
 			want:  []string{`ordplan run: --previous is given an empty value (""), but it names the output folder of an earlier run: give one, or leave the flag out`},
 			check: noFolder("O13-out")},

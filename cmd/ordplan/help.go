@@ -26,7 +26,7 @@ type command struct {
 // commands is every subcommand, in the order `ordplan help` lists them.
 var commands = []command{
 	{name: "run", args: "PLAN.yaml [flags]", summary: "run an analysis plan: fit every model, apply the rules, write the report",
-		about: "Writes report.md, report.html, decisions.json and run.json (and the plan's predictions) into the output folder. Exit code 0: done; 1: the plan or the data is wrong; 2: the command line is wrong; 3: the run finished but no model survived the rules.",
+		about: "Writes report.md, report.html, decisions.json and run.json (and the plan's predictions) into the output folder. Exit code 0: done; 1: the plan or the data is wrong; 2: the command line is wrong; 3: the run finished and wrote its outputs, but for some outcome no model survived the rules and the plan names no fallback, or a sensitivity analysis could not be run.",
 		examples: map[string]string{
 			"out": "--out results/2026-12", "previous": "--previous results/2026-11", "workers": "--workers 2",
 			"quiet": "--quiet", "allow-unregistered-changes": "--allow-unregistered-changes",
@@ -107,6 +107,11 @@ func cmdHelp(args []string, stdout, stderr io.Writer) int {
 	if len(args) == 0 {
 		fmt.Fprint(stdout, usageText())
 		return exitOK
+	}
+	if len(args) > 1 {
+		// `help run --bogus` once printed run's help and exited 0.
+		fmt.Fprintf(stderr, "ordplan help: give one command or topic, not %d (%s); for a command's flags: ordplan help %s\n", len(args), strings.Join(args, " "), args[0])
+		return exitUsage
 	}
 	switch args[0] {
 	case "plan":
