@@ -477,8 +477,8 @@ func (s *SheetRead) HiddenNames() []string {
 // not of every cell again, with excelize's own reading of those elements
 // (overlapping ranges joined, a range's spelling, the last <col> that
 // covers a column). When the rows cannot be told apart for sure (no
-// <sheetData> element, or markup before it that could hide one: a
-// comment, a CDATA section), nothing changes, and excelize parses the
+// <sheetData> element, or markup before or in it that could hide a tag:
+// a comment, a CDATA section), nothing changes, and excelize parses the
 // whole worksheet as before.
 func withoutRows(f *excelize.File, name string, x []byte) {
 	root := bytes.Index(x, []byte("worksheet"))
@@ -503,10 +503,15 @@ func withoutRows(f *excelize.File, name string, x []byte) {
 	if x[end-2] == '/' {
 		return // <sheetData/>: no rows to leave out
 	}
-	closing := bytes.LastIndex(x, []byte("</"+prefix+"sheetData>"))
-	if closing < end {
+	// The first closing tag ends the rows unless a comment or CDATA
+	// section among them could hold one; a later one (in a comment after
+	// the rows) must not be taken: what lies between, the merged ranges,
+	// would be cut.
+	closing := bytes.Index(x[end:], []byte("</"+prefix+"sheetData>"))
+	if closing < 0 || bytes.Contains(x[end:end+closing], []byte("<!")) {
 		return
 	}
+	closing += end
 	out := make([]byte, 0, end+len(x)-closing)
 	out = append(append(out, x[:end]...), x[closing:]...)
 	f.Pkg.Store(strings.ReplaceAll(name, "\\", "/"), out)

@@ -135,11 +135,21 @@ func TestWorkbookLayoutWithoutRows(t *testing.T) {
 			t.Logf("%s: merged %v, hidden %v", c.name, wantMerged, wantHidden)
 		}
 	}
+	// A comment after the rows holding a closing tag: the rows end at the
+	// first one, and the merged ranges between are kept.
+	x := []byte(`<worksheet><sheetData><row r="1"/></sheetData><mergeCells count="1"><mergeCell ref="A1:B1"/></mergeCells><!-- </sheetData> --></worksheet>`)
+	f = excelize.NewFile()
+	withoutRows(f, "xl/worksheets/sheet9.xml", x)
+	if v, ok := f.Pkg.Load("xl/worksheets/sheet9.xml"); !ok || string(v.([]byte)) != `<worksheet><sheetData></sheetData><mergeCells count="1"><mergeCell ref="A1:B1"/></mergeCells><!-- </sheetData> --></worksheet>` {
+		t.Errorf("a closing tag in a comment after the rows: %s", v)
+	}
+	f.Close()
 	// A worksheet whose rows cannot be told apart for sure is left whole.
 	for _, x := range []string{
 		`<worksheet><!-- <sheetData> --><sheetData><row r="1"/></sheetData></worksheet>`,
 		`<worksheet><sheetData/></worksheet>`,
 		`<worksheet><sheetDataX></sheetDataX></worksheet>`,
+		`<worksheet><sheetData><row r="1"/><!-- </sheetData> --></sheetData></worksheet>`,
 	} {
 		f := excelize.NewFile()
 		withoutRows(f, "xl/worksheets/sheet9.xml", []byte(x))
