@@ -112,8 +112,8 @@ func (d *doc) list(items []string) {
 }
 
 // table writes a numbered Markdown table under its caption; cells are
-// escaped for pipes, and columns whose cells are all numbers are
-// right-aligned.
+// escaped for pipes, and columns whose cells are all numbers, and every
+// column of p-values (pColumn), are right-aligned.
 func (d *doc) table(head []string, rows [][]string) {
 	d.nTable++
 	caption := d.caption
@@ -132,7 +132,7 @@ func (d *doc) table(head []string, rows [][]string) {
 	var align strings.Builder
 	for i, h := range head {
 		cells[i] = esc(h)
-		if numericColumn(rows, i) {
+		if numericColumn(rows, i) || pColumn(h) {
 			align.WriteString("---:|")
 		} else {
 			align.WriteString("---|")
@@ -252,6 +252,13 @@ func numericColumn(rows [][]string, i int) bool {
 		}
 	}
 	return seen
+}
+
+// pColumn reports whether a column headed h holds p-values ("p", "p,
+// Holm", "p (one-sided)"): right-aligned like the other numbers although a
+// cell may say why a test has none ("not computed: ...").
+func pColumn(h string) bool {
+	return h == "p" || strings.HasPrefix(h, "p, ") || strings.HasPrefix(h, "p (")
 }
 
 // chartID returns the id of the next chart: fixed by its place in the

@@ -250,3 +250,41 @@ func TestSlopesSayWhereTheyHold(t *testing.T) {
 	hasAll(t, "report.html", string(files["report.html"]), `"subtext":"slope at each boundary, holds at street_type = residential"`)
 	hasAll(t, "figure-2.svg", string(files["figure-2.svg"]), "pilot: slope at each boundary (at street_type = residential)")
 }
+
+// TestPValueColumnsRightAligned: a column of p-values is right-aligned
+// like the other numbers, also when a cell of it says why a test has no
+// p-value (the parallel-lines tests of an adjacent model, Table 15 of the
+// golden report, whose Brant row is "not computed: ..."); every table of
+// the golden report is checked.
+func TestPValueColumnsRightAligned(t *testing.T) {
+	var d doc
+	d.table([]string{"Test", "Chi-square", "df", "p", "p, Holm"}, [][]string{
+		{"Brant (all predictors)", "", "", "not computed: defined for the cumulative logit model only", ""},
+		{"Likelihood ratio (all predictors)", "12.345", "3", "0.0063", "0.0126"},
+	})
+	if !strings.Contains(d.b.String(), "\n|---|---:|---:|---:|---:|\n") {
+		t.Errorf("the p columns are not right-aligned:\n%s", d.b.String())
+	}
+	golden, err := os.ReadFile(filepath.Join("testdata", "golden", "report.md"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(string(golden), "\n")
+	tables := 0
+	for i := 0; i+1 < len(lines); i++ {
+		if !strings.HasPrefix(lines[i], "| ") || !strings.HasPrefix(lines[i+1], "|---") {
+			continue
+		}
+		tables++
+		head := strings.Split(strings.Trim(lines[i], "| "), " | ")
+		align := strings.Split(strings.Trim(lines[i+1], "|"), "|")
+		for c, h := range head {
+			if pColumn(h) && (c >= len(align) || align[c] != "---:") {
+				t.Errorf("golden report line %d: column %q is not right-aligned: %s", i+2, h, lines[i+1])
+			}
+		}
+	}
+	if tables < 20 {
+		t.Errorf("only %d tables found in the golden report", tables)
+	}
+}
