@@ -72,6 +72,11 @@ type Data struct {
 	WeightKind                  string   // "frequency" (default) or "sampling"
 	Offset                      string   // column, optional
 	Cluster                     string   // column, optional
+	// Written: the data are a file ordplan wrote (SetFile: simulated
+	// data), comma-separated with a decimal point, read so whatever
+	// Delimiter, Decimal, Sheet and HeaderRow say; those still say how the
+	// new rows of inference.predict are written (NewRowsDialect).
+	Written bool
 	// Imputed names multiply imputed versions of the data (nil: none):
 	// File then holds the original data with its missing values.
 	Imputed *Imputed
@@ -278,10 +283,13 @@ func (m Models) HasEffects(s fit.Structure) bool { return slices.Contains(m.Effe
 func (m Models) Backward() bool { return m.Direction == "backward" }
 
 // SetFile makes the data one file (named file, read at path), in place
-// of the plan's file or parts: simulated data.
+// of the plan's file or parts: simulated data, which ordplan writes
+// comma-separated with a decimal point (Written), whatever dialect or
+// sheet the plan's own data have.
 func (d *Data) SetFile(file, path string) {
 	d.File, d.Path = file, path
 	d.Parts, d.PartFiles, d.PartPaths = nil, nil, nil
+	d.Written = true
 }
 
 // Paths are the files the data are read from: the parts, or the file.
@@ -310,6 +318,16 @@ func (d *Data) Name() string {
 
 // Dialect is how the data file writes fields and numbers.
 func (d *Data) Dialect() data.Dialect {
+	if d.Written {
+		return data.Dialect{}
+	}
+	return d.NewRowsDialect()
+}
+
+// NewRowsDialect is how the plan's data, and so the new rows of
+// inference.predict, write fields and numbers: Dialect, also when the data
+// read are a file ordplan wrote.
+func (d *Data) NewRowsDialect() data.Dialect {
 	dl, _ := data.ParseDialect(d.Delimiter, d.Decimal)
 	dl.Sheet, dl.HeaderRow = d.Sheet, d.HeaderRow
 	return dl

@@ -191,6 +191,7 @@ func marginalSet(an *Analysis, or *OutcomeResult, res *fit.Result, kind string) 
 // check) it flags the rows outside the population fitted (flagNewRows).
 func readNewRows(an *Analysis, or *OutcomeResult) (*NewRows, error) {
 	inf, dopt := an.Inference, or.dataOptions
+	dopt.Dialect = an.NewRowsDialect
 	nr := &NewRows{File: inf.Predict}
 	sources := make([]string, len(or.Design.Sources))
 	levels := map[string][]string{}

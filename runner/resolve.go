@@ -54,7 +54,10 @@ type Analysis struct {
 	Tests     plan.Tests
 	Rules     []plan.Rule
 	Inference plan.Inference
-	Level     float64
+	// NewRowsDialect is how the new rows of Inference are written: the
+	// plan's data's dialect, also when the data read are simulated.
+	NewRowsDialect data.Dialect
+	Level          float64
 }
 
 // Reading says how to read the data of one outcome and build its design.
@@ -241,7 +244,7 @@ func declaredBounds(dict []plan.Entry) map[string]*chained.Bounds {
 func ResolvePlan(p *plan.Plan) *Analysis {
 	a := &Analysis{Source: p.Path, Plan: true, DataFile: p.Data.Name(), DataPath: p.Data.Path,
 		Errors: covariancePolicy(p.Covariance, p.Data.Sampling(), p.FewClusters),
-		Models: p.Models, Tests: p.Tests, Rules: p.Rules, Inference: p.Inference, Level: p.Report.ConfidenceLevel}
+		Models: p.Models, Tests: p.Tests, Rules: p.Rules, Inference: p.Inference, NewRowsDialect: p.Data.NewRowsDialect(), Level: p.Report.ConfidenceLevel}
 	if p.Data.Parts != nil {
 		a.DataPaths, a.DataFiles = p.Data.PartPaths, p.Data.PartFiles
 	}
