@@ -235,7 +235,8 @@ func mdCode(s string) string {
 var numberCell = regexp.MustCompile(`^(<|−|-)?[0-9][0-9,]*(\.[0-9]+)?(e[-+]?[0-9]+)?%?( of [0-9][0-9,.]*)?( \((-|−)?[0-9.]+(e[-+]?[0-9]+)?%?\))?(, [0-9][0-9,.]* rows)?(–-?[0-9.]+)?$`)
 
 // numericColumn reports whether every non-empty cell of column i is a
-// number (placeholders such as "—" and "n/a" allowed) and one at least is.
+// number, "inf" included (placeholders such as "—" and "n/a" allowed) and
+// one at least is.
 func numericColumn(rows [][]string, i int) bool {
 	seen := false
 	for _, r := range rows {
@@ -245,7 +246,7 @@ func numericColumn(rows [][]string, i int) bool {
 		c := strings.TrimSpace(r[i])
 		switch {
 		case c == "" || c == "—" || c == "n/a":
-		case numberCell.MatchString(c):
+		case numberCell.MatchString(c) || c == "inf": // inf: infinite degrees of freedom (dfCell)
 			seen = true
 		default:
 			return false

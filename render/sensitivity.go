@@ -139,6 +139,10 @@ func sensitivityChanges(r *runner.Result, s plan.Sensitivity) []lock.Change {
 	return out
 }
 
+// sensitivityReferenceWords says what the columns Reference and df of
+// the sensitivity analyses' estimates hold (runner.KeyEstimate).
+const sensitivityReferenceWords = "Column Reference names the distribution each interval refers to, on the degrees of freedom in column df (inf for the normal): the normal for a fit of one data set, t on G-1 under cluster-robust errors from G clusters, t on each estimate's Barnard-Rubin degrees of freedom when pooled over imputed sets (the normal where they are infinite); so the same standard error can give intervals of different widths."
+
 // writeSensitivityOutcome writes, for one outcome, the model each
 // analysis chose and the primary chosen model's estimates under each.
 func writeSensitivityOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult, level float64) {
@@ -204,18 +208,18 @@ func writeSensitivityOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult,
 	var est [][]string
 	for _, p := range params {
 		for _, c := range cols {
-			row := []string{ParamLabel(res, p), c.name + " (not in this model)", "", "", "", ""}
+			row := []string{ParamLabel(res, p), c.name + " (not in this model)", "", "", "", "", "", ""}
 			for _, e := range c.m.Estimates {
 				if e.Parameter == p {
-					row = []string{ParamLabel(res, p), c.name, numfmt.Est(e.Estimate), numfmt.Est(e.StdError), numfmt.Est(e.Lower), numfmt.Est(e.Upper)}
+					row = []string{ParamLabel(res, p), c.name, numfmt.Est(e.Estimate), numfmt.Est(e.StdError), numfmt.Est(e.Lower), numfmt.Est(e.Upper), e.Reference, dfCell(e.RefDF())}
 				}
 			}
 			est = append(est, row)
 		}
 	}
-	d.p("The primary analysis's chosen model, %s, fitted under each sensitivity analysis (whatever its rules chose): its effects with %s intervals, as in the primary analysis's table of estimates; the boundaries' tau are left out.", or.Chosen.ID, pct(level))
+	d.p("The primary analysis's chosen model, %s, fitted under each sensitivity analysis (whatever its rules chose): its effects with %s intervals, as in the primary analysis's table of estimates; the boundaries' tau are left out. %s", or.Chosen.ID, pct(level), sensitivityReferenceWords)
 	d.captioned("Estimates of "+or.Chosen.ID+" under each analysis, "+or.Outcome.Column).table(
-		[]string{"Parameter", "Analysis", "Estimate", "Std. error", pct(level) + " low", pct(level) + " high"}, est)
+		[]string{"Parameter", "Analysis", "Estimate", "Std. error", pct(level) + " low", pct(level) + " high", "Reference", "df"}, est)
 	if len(missing) > 0 {
 		d.p("Not fitted under: %s.", strings.Join(missing, "; "))
 	}
@@ -287,13 +291,17 @@ func sensitivityCSV(r *runner.Result, or *runner.OutcomeResult, level float64, l
 	}
 	add := func(analysis string, m runner.SensitivityModel) {
 		for _, e := range m.Estimates {
-			rows = append(rows, []string{analysis, ParamLabel(or.Chosen.Result, e.Parameter), csvNum(e.Estimate), csvNum(e.StdError), csvNum(e.Lower), csvNum(e.Upper)})
+			df := "inf"
+			if e.DF != nil {
+				df = csvNum(*e.DF)
+			}
+			rows = append(rows, []string{analysis, ParamLabel(or.Chosen.Result, e.Parameter), csvNum(e.Estimate), csvNum(e.StdError), csvNum(e.Lower), csvNum(e.Upper), e.Reference, df})
 		}
 	}
 	add("primary", runner.SensitivityModel{Estimates: runner.KeyEstimates(or.Chosen.Result, level)})
 	for _, sr := range r.Sensitivity {
 		add(sr.Sensitivity.Name, runner.PrimaryModelUnder(or.Chosen.ID, sr.Outcome(or.Outcome.Column), level))
 	}
-	about = fmt.Sprintf("the effects of the chosen model, %s, under the primary analysis (primary) and under each sensitivity analysis the plan fixed (by its name), with %s%% intervals; an analysis under which the model was not fitted has no rows (the report says why)", or.Chosen.ID, lv)
-	return "sensitivity", about, []string{"analysis", "parameter", "estimate", "std_error", "low_" + lv, "high_" + lv}, rows, true
+	about = fmt.Sprintf("the effects of the chosen model, %s, under the primary analysis (primary) and under each sensitivity analysis the plan fixed (by its name), with %s%% intervals and the distribution they refer to (reference: normal, or t on df degrees of freedom, G-1 under cluster-robust errors from G clusters or the Barnard-Rubin degrees of freedom pooled over imputed sets; df inf for the normal); an analysis under which the model was not fitted has no rows (the report says why)", or.Chosen.ID, lv)
+	return "sensitivity", about, []string{"analysis", "parameter", "estimate", "std_error", "low_" + lv, "high_" + lv, "reference", "df"}, rows, true
 }

@@ -2,6 +2,7 @@ package runner
 
 import (
 	"fmt"
+	"math"
 	"path/filepath"
 	"slices"
 	"strings"
@@ -88,13 +89,28 @@ func (sr *SensitivityResult) Outcome(column string) *OutcomeResult {
 
 // KeyEstimate is one effect parameter of a fit (not a boundary's tau)
 // with its interval at the plan's confidence level, as the table of the
-// chosen model's estimates gives it (fit.Result.ParamInference).
+// chosen model's estimates gives it (fit.Result.ParamInference), and the
+// distribution the interval refers to: the normal, or t on DF degrees of
+// freedom (G-1 under cluster-robust errors from G clusters, the
+// Barnard-Rubin degrees of freedom pooled over imputed sets).
 type KeyEstimate struct {
 	Parameter string  `json:"parameter"`
 	Estimate  float64 `json:"estimate"`
 	StdError  float64 `json:"std_error"`
 	Lower     float64 `json:"lower"`
 	Upper     float64 `json:"upper"`
+	// Reference is "normal" or "t" (fit.Inference.Reference).
+	Reference string `json:"reference"`
+	// DF are the degrees of freedom of t (nil for the normal: infinite).
+	DF *float64 `json:"df,omitempty"`
+}
+
+// RefDF is e's degrees of freedom, +Inf for the normal.
+func (e KeyEstimate) RefDF() float64 {
+	if e.DF == nil {
+		return math.Inf(1)
+	}
+	return *e.DF
 }
 
 // KeyEstimates are the effect parameters of res, in its order, with
@@ -106,7 +122,12 @@ func KeyEstimates(res *fit.Result, level float64) []KeyEstimate {
 			continue
 		}
 		inf := res.ParamInference(i, level)
-		out = append(out, KeyEstimate{Parameter: n, Estimate: res.Estimates[i], StdError: res.StdErrors[i], Lower: inf.Low, Upper: inf.High})
+		e := KeyEstimate{Parameter: n, Estimate: res.Estimates[i], StdError: res.StdErrors[i], Lower: inf.Low, Upper: inf.High, Reference: inf.Reference()}
+		if !math.IsInf(inf.DF, 1) {
+			df := inf.DF
+			e.DF = &df
+		}
+		out = append(out, e)
 	}
 	return out
 }

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"encoding/csv"
 	"encoding/json"
 	"fmt"
 	"math"
@@ -100,13 +101,38 @@ type sensDecisions struct {
 			PrimaryModel  struct {
 				Model     string `json:"model"`
 				Estimates []struct {
-					Parameter string  `json:"parameter"`
-					Estimate  float64 `json:"estimate"`
-					StdError  float64 `json:"std_error"`
+					Parameter string   `json:"parameter"`
+					Estimate  float64  `json:"estimate"`
+					StdError  float64  `json:"std_error"`
+					Reference string   `json:"reference"`
+					DF        *float64 `json:"df"`
 				} `json:"estimates"`
 			} `json:"primary_model"`
 		} `json:"outcomes"`
 	} `json:"sensitivity"`
+}
+
+// readCSVTable reads the CSV table out/name: its header and its rows as
+// maps from the header's names.
+func readCSVTable(t *testing.T, out, name string) []map[string]string {
+	t.Helper()
+	b, err := os.ReadFile(filepath.Join(out, name))
+	if err != nil {
+		t.Fatal(err)
+	}
+	recs, err := csv.NewReader(bytes.NewReader(b)).ReadAll()
+	if err != nil || len(recs) == 0 {
+		t.Fatalf("%s: %v", name, err)
+	}
+	var rows []map[string]string
+	for _, r := range recs[1:] {
+		m := map[string]string{}
+		for i, h := range recs[0] {
+			m[h] = r[i]
+		}
+		rows = append(rows, m)
+	}
+	return rows
 }
 
 func readSensDecisions(t *testing.T, out string) sensDecisions {
@@ -168,6 +194,15 @@ func TestSensitivityAnalysesAsSeparatePlans(t *testing.T) {
 		out := filepath.Join(dir, fmt.Sprintf("separate%d", i))
 		run(plan, out)
 		sep := readSensDecisions(t, out).Outcomes[0]
+		// The separate plan's table of estimates: the interval and its
+		// degrees of freedom (on imputed data, Barnard-Rubin; empty when
+		// infinite, as for the normal).
+		sepEst := map[string]map[string]string{}
+		for _, row := range readCSVTable(t, out, "table-estimates-y.csv") {
+			if row["model"] == primary {
+				sepEst[row["parameter"]] = row
+			}
+		}
 		if *so.Chosen != *sep.Chosen || so.RowsUsed != sep.RowsUsed || so.SameAsPrimary != (*sep.Chosen == primary) {
 			t.Errorf("%s: chose %s on %d rows (same as primary %v); the separate plan %s on %d rows", s.Name, *so.Chosen, so.RowsUsed, so.SameAsPrimary, *sep.Chosen, sep.RowsUsed)
 		}
@@ -184,11 +219,22 @@ func TestSensitivityAnalysesAsSeparatePlans(t *testing.T) {
 				if e.Estimate != f.Estimates[e.Parameter] || e.StdError != f.StdErrors[e.Parameter] {
 					t.Errorf("%s: %s = %v (%v), the separate plan's %v (%v)", s.Name, e.Parameter, e.Estimate, e.StdError, f.Estimates[e.Parameter], f.StdErrors[e.Parameter])
 				}
-				row := fmt.Sprintf("| %s | %s | %s | %s |", e.Parameter, s.Name, numfmt.Est(f.Estimates[e.Parameter]), numfmt.Est(f.StdErrors[e.Parameter]))
+				se := sepEst[e.Parameter]
+				low, _ := strconv.ParseFloat(se["low_95"], 64)
+				high, _ := strconv.ParseFloat(se["high_95"], 64)
+				ref, df, dfMD := "normal", "inf", "inf"
+				if se["df"] != "" {
+					x, _ := strconv.ParseFloat(se["df"], 64)
+					ref, df, dfMD = "t", se["df"], numfmt.Fixed(x, 1)
+				}
+				if wantT := i == 1; (ref == "t") != wantT || e.Reference != ref || (e.DF == nil) != (ref == "normal") {
+					t.Errorf("%s: %s refers to %s (df %v) in decisions.json, the separate plan's table of estimates to %s (df %s)", s.Name, e.Parameter, e.Reference, e.DF, ref, df)
+				}
+				row := fmt.Sprintf("| %s | %s | %s | %s | %s | %s | %s | %s |", e.Parameter, s.Name, numfmt.Est(f.Estimates[e.Parameter]), numfmt.Est(f.StdErrors[e.Parameter]), numfmt.Est(low), numfmt.Est(high), ref, dfMD)
 				if !bytes.Contains(report, []byte(row)) {
 					t.Errorf("report.md lacks the row %s", row)
 				}
-				line := fmt.Sprintf("\n%s,%s,%s,%s,", s.Name, e.Parameter, strconv.FormatFloat(e.Estimate, 'g', 12, 64), strconv.FormatFloat(e.StdError, 'g', 12, 64))
+				line := fmt.Sprintf("\n%s,%s,%s,%s,%s,%s,%s,%s\n", s.Name, e.Parameter, strconv.FormatFloat(e.Estimate, 'g', 12, 64), strconv.FormatFloat(e.StdError, 'g', 12, 64), se["low_95"], se["high_95"], ref, df)
 				if !bytes.Contains(table, []byte(line)) {
 					t.Errorf("table-sensitivity-y.csv lacks the line %s", line)
 				}
@@ -287,6 +333,26 @@ func TestSensitivityErrorsOnly(t *testing.T) {
 			}
 			if bytes.Contains(report, []byte("Agreement between them shows")) {
 				t.Error("report.md counts the errors-only analysis as agreement")
+			}
+			// Each interval names its reference: the primary analysis's the
+			// normal, the clustered analysis's t on G-1 = 11 degrees of
+			// freedom, and its half-width over the standard error is that
+			// reference's 0.975 quantile (R: qnorm(0.975) = 1.959964,
+			// qt(0.975, 11) = 2.200985, as R prints them).
+			for _, row := range readCSVTable(t, out, "table-sensitivity-y.csv") {
+				ref, df, q := "normal", "inf", 1.959964
+				if row["analysis"] == "clustered" {
+					ref, df, q = "t", "11", 2.200985
+				}
+				se, _ := strconv.ParseFloat(row["std_error"], 64)
+				low, _ := strconv.ParseFloat(row["low_95"], 64)
+				high, _ := strconv.ParseFloat(row["high_95"], 64)
+				if row["reference"] != ref || row["df"] != df || math.Abs((high-low)/(2*se)-q) > 1e-6 {
+					t.Errorf("table-sensitivity-y.csv: %s %s: reference %s on df %s, interval %v to %v of standard error %v; want %s on %s, half-width %v standard errors", row["analysis"], row["parameter"], row["reference"], row["df"], low, high, se, ref, df, q)
+				}
+			}
+			if !bytes.Contains(report, []byte("| clustered | ")) || !bytes.Contains(report, []byte(" | t | 11.0 |\n")) || !bytes.Contains(report, []byte(" | normal | inf |\n")) {
+				t.Error("report.md's estimates under each analysis lack the reference and its df")
 			}
 			// The claim itself: the same estimates as the primary's fit.
 			d := readSensDecisions(t, out)

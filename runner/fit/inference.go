@@ -18,6 +18,15 @@ type Inference struct {
 	DF                 float64 // +Inf for the normal reference
 }
 
+// Reference names the distribution the p-value and the interval refer
+// to: "normal" when DF is infinite, else "t" (on DF degrees of freedom).
+func (in Inference) Reference() string {
+	if math.IsInf(in.DF, 1) {
+		return "normal"
+	}
+	return "t"
+}
+
 // ParamInference is the inference on parameter i (see Inference).
 func (r *Result) ParamInference(i int, level float64) Inference {
 	g := make([]float64, len(r.Estimates))
