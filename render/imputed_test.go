@@ -517,3 +517,77 @@ func TestPoolingTableLambda(t *testing.T) {
 		t.Fatalf("no row of finite df in\n%s", tab)
 	}
 }
+
+// TestInfiniteDFWrittenInf: on imputed sets that are all the same (an
+// invented survey, seeded: testsurvey.Report with Same, so the sets hold
+// the true x2 and nothing varies between them) the between-imputation
+// part r of every pooled test is 0, and the D3 likelihood-ratio tests
+// refer to F(k, infinity) (Meng and Rubin 1992: the denominator df grows
+// without bound as r goes to 0). Every CSV column of degrees of freedom
+// (df, df2, lr_df2, df_...) then holds a number or "inf" in each row that
+// has a p-value, never an empty cell (kept for a value that does not
+// exist), and the infinite ones read "inf". The per-parameter
+// Barnard-Rubin df stay finite here (nu_obs with the complete-data df).
+func TestInfiniteDFWrittenInf(t *testing.T) {
+	dir := t.TempDir()
+	sv := testsurvey.Report.Imputed(rand.New(rand.NewPCG(31, 4)), testsurvey.ImputedOptions{Rows: 240, Sets: 3, Missing: 0.25, Digits: 5, Same: true})
+	os.WriteFile(filepath.Join(dir, "orig.csv"), []byte(sv.Orig), 0o644)
+	os.WriteFile(filepath.Join(dir, "stacked.csv"), []byte(sv.Stacked), 0o644)
+	os.WriteFile(filepath.Join(dir, "new.csv"), []byte("id,x1,x2\nA,0,0\nB,1,-1\n"), 0o644)
+	files := renderSource(t, dir, `version: 1
+title: identical imputed sets
+data: {file: orig.csv, imputed: {file: stacked.csv, column: imp}}
+outcomes: [{column: y}]
+predictors: [x1, x2]
+models: {approaches: [cumulative], effects: [parallel, nonparallel]}
+tests: {parallel_lines: [lr, wald, brant]}
+rules:
+  - choose: {by: bic}
+inference:
+  hypotheses: ["x1 = 0; x2 = 0"]
+  marginal_effects: [average]
+  predict: new.csv
+`, 2)
+	checked, inf := map[string]int{}, map[string]int{}
+	for name, b := range files {
+		if !strings.HasSuffix(name, ".csv") || bytes.Count(b, []byte("\n")) < 2 {
+			continue // not a table, or a header alone
+		}
+		for _, r := range csvByHeader(t, name, b) {
+			p, ok := r["p"]
+			if !ok {
+				p = r["lr_p"]
+			}
+			if name == "table-tests-y.csv" && !strings.HasPrefix(r["note"], "pooled") {
+				continue // not pooled: a chi-square, no df2
+			}
+			if !strings.HasPrefix(name, "predictions-") && p == "" {
+				continue
+			}
+			for col, v := range r {
+				if col != "df" && col != "df2" && col != "lr_df2" && !strings.HasPrefix(col, "df_") {
+					continue
+				}
+				key := name + " " + col
+				checked[key]++
+				if v == "inf" {
+					inf[key]++
+				} else if x, err := strconv.ParseFloat(v, 64); err != nil || !(x > 0) || math.IsInf(x, 0) {
+					t.Errorf("%s: column %s is %q, want a number or inf: %v", name, col, v, r)
+				}
+			}
+		}
+	}
+	for _, want := range []string{"table-estimates-y.csv df", "table-tests-y.csv df2", "table-models-y.csv lr_df2", "table-term-tests-y.csv df2", "table-marginal-effects-y.csv df"} {
+		if checked[want] == 0 {
+			t.Errorf("no row of %s checked", want)
+		}
+	}
+	// (The tests against the thresholds-only model keep an r of rounding
+	// size, so their df2 is large but finite.)
+	for _, want := range []string{"table-tests-y.csv df2", "table-term-tests-y.csv df2"} {
+		if inf[want] == 0 {
+			t.Errorf("no inf in %s (D3 on identical sets): %v", want, inf)
+		}
+	}
+}

@@ -131,7 +131,7 @@ func writeNewRows(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	d.p("The chosen model's predictions for %s of %s (%d rows read, %s) are in `%s`: for each row its line in the file and the file's own columns (so a row label travels with its predictions), the category probabilities (`prob_CATEGORY`), the cumulative probabilities P(y <= m) (`cumprob_CATEGORY`), the expected category (`expected`, categories scored 1 to %d), the most likely category, the linear predictors (`linear_m`) and whether the row lies outside the population the model was fitted to (`outside`, with the reasons in `outside_why`), each number with its delta-method standard error (`se_...`) and its %s interval (`low_%s_...`, `high_%s_...`). The interval of a linear predictor is the number plus and minus %s standard errors. That of a probability is made on its log-odds scale, logit(p) plus and minus the same multiple of the error se/(p(1 − p)), and transformed back, so that it stays between 0 and 1 and is not symmetric about p near either end (empty for a negative probability); that of the expected category likewise on the log-odds scale of its place between 1 and %d. Rows with a negative predicted probability: %d.",
 		rowsOf, file, nr.Rows.RowsRead, skippedNewRows(nr.Rows), predictionsFile(or), len(or.Data.Categories), pct(level), lvText(level), lvText(level), times, len(or.Data.Categories), neg)
 	if nr.DF != nil {
-		d.p("On imputed data each number was predicted on each of the %d imputed sets by that set's fit and pooled by Rubin's rules: the prediction is the mean over the sets, its standard error the square root of the mean squared delta-method error plus (1 + 1/%d) times the variance between the sets, and each standard error is followed by its Barnard-Rubin degrees of freedom (`df_...`, empty when the sets agree) ; the intervals use t on them. The most likely category is that of the pooled probabilities; a row is flagged negative when a pooled probability or any set's is.",
+		d.p("On imputed data each number was predicted on each of the %d imputed sets by that set's fit and pooled by Rubin's rules: the prediction is the mean over the sets, its standard error the square root of the mean squared delta-method error plus (1 + 1/%d) times the variance between the sets, and each standard error is followed by its Barnard-Rubin degrees of freedom (`df_...`, inf when the sets agree) ; the intervals use t on them. The most likely category is that of the pooled probabilities; a row is flagged negative when a pooled probability or any set's is.",
 			or.Imputed.M, or.Imputed.M)
 	}
 	writeNotPredicted(d, or)
@@ -275,7 +275,7 @@ func predictionsCSV(r *runner.Result, or *runner.OutcomeResult) []byte {
 	J, q := pr.J, pr.J-1
 	cat := csvNames(lv)
 	// On imputed data every standard error is followed by the pooled
-	// degrees of freedom (df_..., empty when infinite).
+	// degrees of freedom (df_..., inf when infinite).
 	df := nr.DF
 	var head []string
 	head = append(head, "line")
@@ -328,9 +328,7 @@ func predictionsCSV(r *runner.Result, or *runner.OutcomeResult) []byte {
 		q := z
 		if df != nil {
 			b.WriteString(",")
-			if !math.IsInf(dfs[a], 1) {
-				b.WriteString(f(dfs[a]))
-			}
+			b.WriteString(csvDF(dfs[a]))
 			q = fit.TQuantile(0.5+level/2, dfs[a])
 		}
 		l, h := v-q*se, v+q*se

@@ -2,7 +2,6 @@ package render
 
 import (
 	"fmt"
-	"math"
 	"slices"
 	"strconv"
 	"strings"
@@ -280,7 +279,7 @@ func levelPairsCSV(or *runner.OutcomeResult) [][]string {
 	pooled := or.Imputed != nil
 	refDF := "" // the df of t under a cluster-robust covariance (clusterRef)
 	if or.Chosen != nil && clusterRef(or.Chosen.Result) {
-		refDF = csvNum(or.Chosen.Result.RefDF)
+		refDF = csvDF(or.Chosen.Result.RefDF)
 	}
 	for _, set := range or.LevelPairs {
 		differences := func(kind string, me runner.MarginalSet, adjusted []float64) {
@@ -290,8 +289,8 @@ func levelPairsCSV(or *runner.OutcomeResult) [][]string {
 					adj = csvNum(adjusted[e])
 				}
 				df := refDF
-				if pooled && e < len(me.Pooling) && me.Pooling[e].DF != nil {
-					df = csvNum(*me.Pooling[e].DF)
+				if pooled && e < len(me.Pooling) {
+					df = csvDFOf(me.Pooling[e].DF)
 				}
 				rows = append(rows, []string{set.Predictor, kind, x.Change, x.Category, "", csvNum(x.Effect), csvNum(x.SE), csvNum(x.Z), csvNum(x.P), adj, set.Multiplicity, csvNum(x.Low), csvNum(x.High), df})
 			}
@@ -306,8 +305,8 @@ func levelPairsCSV(or *runner.OutcomeResult) [][]string {
 				adj = csvNum(*o.Adjusted)
 			}
 			df := refDF
-			if pooled && !math.IsInf(o.DF, 1) {
-				df = csvNum(o.DF)
+			if pooled {
+				df = csvDF(o.DF)
 			}
 			rows = append(rows, []string{set.Predictor, "odds_ratio", o.Change, "", strconv.Itoa(o.Boundary), csvNum(o.Ratio), csvNum(o.LogSE), csvNum(o.Z), csvNum(o.P), adj, set.Multiplicity, csvNum(o.Low), csvNum(o.High), df})
 		}

@@ -57,11 +57,35 @@ func csvStat(t fit.Test, imputed bool) string {
 	return ""
 }
 
-// csvDF2 is a pooled test's denominator degrees of freedom, empty when
-// infinite (or for a test that is not pooled).
+// csvDF writes degrees of freedom in a CSV table: "inf" when infinite
+// (a t or F reference that is the normal or the chi-square), empty when
+// not a number. The one writer of every df and df2 cell.
+func csvDF(x float64) string {
+	if math.IsInf(x, 1) {
+		return "inf"
+	}
+	return csvNum(x)
+}
+
+// csvDFOf is csvDF of the degrees of freedom of a pooled quantity, which
+// its record leaves nil when they are infinite (runner.PoolingParam).
+func csvDFOf(df *float64) string {
+	if df == nil {
+		return csvDF(math.Inf(1))
+	}
+	return csvDF(*df)
+}
+
+// csvDF2 is the denominator degrees of freedom of a test referred to an F
+// distribution: a test pooled over imputed sets (its record's DF2 0 when
+// infinite: "inf") or a Wald test on a cluster-robust covariance (FRef);
+// empty for a chi-square test, which has none.
 func csvDF2(t fit.Test) string {
-	if t.Pooled != "" && t.DF2 > 0 {
-		return csvNum(t.DF2)
+	switch {
+	case t.Pooled != "" && t.DF2 <= 0:
+		return csvDF(math.Inf(1))
+	case t.Pooled != "" || t.FRef:
+		return csvDF(t.DF2)
 	}
 	return ""
 }
@@ -188,7 +212,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	}
 	about = "every candidate model: status, log-likelihood, criteria, likelihood-ratio test against its thresholds-only model, pseudo-R2"
 	if imputed && slices.ContainsFunc(or.Overall, func(o runner.OverallRecord) bool { return o.LR.Pooled != "" }) {
-		about += " (on imputed data the test is pooled by D3: lr_f its F statistic on lr_df and lr_df2 degrees of freedom, lr_df2 empty when infinite, lr_p from that F distribution; log-likelihoods, criteria and pseudo-R2 are means over the sets)"
+		about += " (on imputed data the test is pooled by D3: lr_f its F statistic on lr_df and lr_df2 degrees of freedom, lr_df2 inf when infinite, lr_p from that F distribution; log-likelihoods, criteria and pseudo-R2 are means over the sets)"
 	} else if imputed {
 		about += " (on imputed data log-likelihoods, criteria and pseudo-R2 are means over the sets; lr_f, lr_df2 and lr_p are empty: the statistic is not a test here)"
 	}
@@ -211,14 +235,11 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 			row := []string{f.ID, f.Verdict, ParamLabel(res, n), csvNum(res.Estimates[i]), csvNum(res.StdErrors[i]), csvNum(inf.Stat),
 				csvNum(inf.P), csvNum(inf.Low), csvNum(inf.High)}
 			if or.Imputed != nil {
-				row = append(row, "")
-				if !math.IsInf(inf.DF, 1) {
-					row[len(row)-1] = csvNum(inf.DF)
-				}
+				row = append(row, csvDF(inf.DF))
 			}
 			if clusterRef(res) {
 				stat = "t"
-				row = append(row, csvNum(res.RefDF))
+				row = append(row, csvDF(res.RefDF))
 			}
 			rows = append(rows, row)
 		}
@@ -228,7 +249,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	head := []string{"model", "verdict", "parameter", "estimate", "std_error", stat, "p", "low_" + lv, "high_" + lv}
 	if or.Imputed != nil {
 		head = append(head, "df")
-		about += ", pooled over the imputed sets (t is the estimate over its standard error; p and the intervals from t on df, the Barnard-Rubin degrees of freedom" + pooledCSVDF(or) + "; df empty when infinite)"
+		about += ", pooled over the imputed sets (t is the estimate over its standard error; p and the intervals from t on df, the Barnard-Rubin degrees of freedom" + pooledCSVDF(or) + "; df inf when infinite)"
 	} else if stat == "t" {
 		head = append(head, "df")
 		about += " (t: the estimate over its standard error, p and the intervals from t on df = G-1 degrees of freedom, G the clusters of the cluster-robust covariance)"
@@ -251,7 +272,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 				}
 				row := []string{or.Chosen.ID, x.Predictor, x.Change, x.HoldsAt, strconv.Itoa(x.Boundary), b, x.Kind, csvNum(x.Log), csvNum(x.LogSE), csvNum(x.Ratio), csvNum(x.Low), csvNum(x.High)}
 				if withDF {
-					row = append(row, csvNum(x.DF))
+					row = append(row, csvDF(x.DF))
 				}
 				rows = append(rows, row)
 			}
@@ -260,7 +281,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 			if withDF {
 				head = append(head, "df")
 				if or.Imputed != nil {
-					about += "; pooled over the imputed sets, the intervals exp(log_estimate -+ t log_se) with t the quantile of t on df, the Barnard-Rubin degrees of freedom of the column's slope in table-estimates" + pooledCSVDF(or) + " (for a constrained predictor the smallest among the parameters involved; df empty when infinite)"
+					about += "; pooled over the imputed sets, the intervals exp(log_estimate -+ t log_se) with t the quantile of t on df, the Barnard-Rubin degrees of freedom of the column's slope in table-estimates" + pooledCSVDF(or) + " (for a constrained predictor the smallest among the parameters involved; df inf when infinite)"
 				} else {
 					about += "; the intervals exp(log_estimate -+ t log_se) with t the quantile of t on df = G-1 degrees of freedom, G the clusters of the cluster-robust covariance"
 				}
@@ -278,7 +299,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	testsAbout := "every test of the report: parallel lines, nested likelihood ratios, each model against its thresholds-only model, the Lipsitz and Pulkstenis-Robinson tests, the plan's hypotheses, the tests of each term of the chosen model"
 	if imputed {
 		testsHead = []string{"family", "approach", "link", "scope", "test", "f", "df", "df2", "p", "note"}
-		testsAbout += "; on imputed data each test is pooled over the sets (D1, D2 or D3, in note): f its F statistic on df and df2 degrees of freedom (df2 empty when infinite), p from that F distribution"
+		testsAbout += "; on imputed data each test is pooled over the sets (D1, D2 or D3, in note): f its F statistic on df and df2 degrees of freedom (df2 inf when infinite), p from that F distribution"
 	}
 	testRow := func(family, approach, link, scope string, t fit.Test) {
 		row := []string{family, approach, link, scope, t.Name}
@@ -355,7 +376,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	if len(or.TermTests) > 0 {
 		about := "the Wald and likelihood-ratio tests of each term of the chosen model (tested_with: the interactions containing the term, tested with it; restricted_model: the refit without them; note: why a test was not computed)"
 		if imputed {
-			about = strings.TrimSuffix(about, ")") + "; on imputed data f is the pooled F statistic on df and df2 degrees of freedom, df2 empty when infinite, p from that F distribution)"
+			about = strings.TrimSuffix(about, ")") + "; on imputed data f is the pooled F statistic on df and df2 degrees of freedom, df2 inf when infinite, p from that F distribution)"
 		}
 		if or.Chosen.Result.RefDF > 0 && or.Chosen.Result.DF == nil {
 			about = strings.TrimSuffix(about, ")") + "; on the cluster-robust covariance of G clusters a Wald chi2 is referred as chi2 (G-df)/((G-1) df) to F(df, df2), df2 = G-df, and note says so)"
@@ -370,7 +391,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		about := "marginal effects of the chosen model with " + lv + "% intervals"
 		if or.Imputed != nil {
 			head = append(head, "df", "fmi")
-			about += ", pooled over the imputed sets (t: the effect over its standard error, p and the intervals from t on df, the Barnard-Rubin degrees of freedom" + pooledCSVDF(or) + "; df empty when infinite)"
+			about += ", pooled over the imputed sets (t: the effect over its standard error, p and the intervals from t on df, the Barnard-Rubin degrees of freedom" + pooledCSVDF(or) + "; df inf when infinite)"
 		} else if mstat == "t" {
 			head = append(head, "df")
 			about += " (t: the effect over its standard error, p and the intervals from t on df = G-1 degrees of freedom, G the clusters of the cluster-robust covariance)"
@@ -379,15 +400,13 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 			for e, me := range set.Effects {
 				row := []string{set.Kind, me.Predictor, me.Change, me.Category, strconv.FormatBool(me.Discrete), csvNum(me.Effect), csvNum(me.SE), csvNum(me.Z), csvNum(me.P), csvNum(me.Low), csvNum(me.High)}
 				if or.Imputed == nil && mstat == "t" {
-					row = append(row, csvNum(or.Chosen.Result.RefDF))
+					row = append(row, csvDF(or.Chosen.Result.RefDF))
 				}
 				if or.Imputed != nil {
 					row = append(row, "", "")
 					if e < len(set.Pooling) {
 						pp := set.Pooling[e]
-						if pp.DF != nil {
-							row[len(row)-2] = csvNum(*pp.DF)
-						}
+						row[len(row)-2] = csvDFOf(pp.DF)
 						row[len(row)-1] = csvNum(pp.FMI)
 					}
 				}
@@ -413,7 +432,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 			about += "; effect_at_means, effect_at_profile: the difference of the probabilities predicted with the predictor at b and at a at one point, the other predictors at the point of the marginal effects at the means or at the plan's profile (table-marginal-effects, column at), p-values adjusted within the pairs for one category at that point"
 		}
 		if or.Imputed != nil {
-			about += "; pooled over the imputed sets (t: the estimate, of an odds ratio its log, over its standard error, p and the intervals from t on df, the Barnard-Rubin degrees of freedom" + pooledCSVDF(or) + ", for an odds ratio the smallest among the parameters involved; df empty when infinite)"
+			about += "; pooled over the imputed sets (t: the estimate, of an odds ratio its log, over its standard error, p and the intervals from t on df, the Barnard-Rubin degrees of freedom" + pooledCSVDF(or) + ", for an odds ratio the smallest among the parameters involved; df inf when infinite)"
 		} else if refStat(or.Chosen.Result) == "t" {
 			about += "; t: the estimate (of an odds ratio, its log) over its standard error, p and the intervals from t on df = G-1 degrees of freedom, G the clusters of the cluster-robust covariance"
 		}

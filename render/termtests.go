@@ -163,7 +163,7 @@ func termTestHead(imputed bool) []string {
 
 // termTestRows are the rows of table-term-tests: one per term and test.
 // On imputed data the statistic is F and p comes from F(df, df2) (df2
-// empty: infinite).
+// inf: infinite).
 func termTestRows(or *runner.OutcomeResult) [][]string {
 	var rows [][]string
 	for _, tt := range or.TermTests {
@@ -173,10 +173,7 @@ func termTestRows(or *runner.OutcomeResult) [][]string {
 				rows = append(rows, append(row, "", "", "", "", "", "", t.Reason))
 				continue
 			}
-			df2, restricted := "", ""
-			if (t.Pooled != "" || t.FRef) && t.DF2 > 0 {
-				df2 = csvNum(t.DF2)
-			}
+			restricted := ""
 			if t.Name == fit.TestLR.String() {
 				restricted = tt.Without
 			}
@@ -186,7 +183,7 @@ func termTestRows(or *runner.OutcomeResult) [][]string {
 					note = append(note, n)
 				}
 			}
-			rows = append(rows, append(row, csvStat(t, or.Imputed != nil), strconv.Itoa(t.DF), df2, csvNum(t.P), t.Pooled, restricted, strings.Join(note, "; ")))
+			rows = append(rows, append(row, csvStat(t, or.Imputed != nil), strconv.Itoa(t.DF), csvDF2(t), csvNum(t.P), t.Pooled, restricted, strings.Join(note, "; ")))
 		}
 	}
 	return rows
