@@ -34,6 +34,7 @@ var references = []reference{
 	{"wolfe", "Wolfe, R. & Gould, W. (1998). An approximate likelihood-ratio test for ordinal response models. Stata Technical Bulletin 42:24-27."},
 	{"williams", "Williams, R. (2006). Generalized ordered logit/partial proportional odds models for ordinal dependent variables. The Stata Journal 6:58-82."},
 	{"white", "White, H. (1980). A heteroskedasticity-consistent covariance matrix estimator and a direct test for heteroskedasticity. Econometrica 48:817-838."},
+	{"liang", "Liang, K.-Y. & Zeger, S.L. (1986). Longitudinal data analysis using generalized linear models. Biometrika 73:13-22."},
 	{"mnw", "MacKinnon, J.G., Nielsen, M.Ø. & Webb, M.D. (2023). Cluster-robust inference: A guide to empirical practice. Journal of Econometrics 232:272-299."},
 	{"mcfadden", "McFadden, D. (1974). Conditional logit analysis of qualitative choice behavior. In P. Zarembka (ed.), Frontiers in Econometrics, 105-142. Academic Press."},
 	{"nagelkerke", "Nagelkerke, N.J.D. (1991). A note on a general definition of the coefficient of determination. Biometrika 78:691-692."},
@@ -175,14 +176,7 @@ func writeMethods(d *doc, r *runner.Result) {
 				s = append(s, fmt.Sprintf("The %s tests of the parallel-lines assumption the plan asks for were not computed: with sampling weights the fits maximize a pseudo-likelihood, which gives them no chi-square reference.", words.AndList(barred)))
 			}
 		}
-		cov := r.Analysis.Errors.Phrase(mdCode(p.Data.Cluster), runner.ClusterCount(or.Data))
-		switch {
-		case r.Analysis.Errors.Jackknife():
-			cov += " " + c.cite("mnw")
-		case strings.Contains(cov, "sandwich"):
-			cov += " " + c.cite("white")
-		}
-		s = append(s, fmt.Sprintf("Standard errors came from the %s.", cov))
+		s = append(s, fmt.Sprintf("Standard errors came from the %s.", covarianceWords(r.Analysis.Errors, mdCode(p.Data.Cluster), runner.ClusterCount(or.Data), c)))
 		var rules []string
 		for i, ro := range or.Rules {
 			rules = append(rules, fmt.Sprintf("(%d) %s", i+1, strings.TrimSuffix(ro.Description, ".")))
@@ -615,6 +609,27 @@ func onlyCumulativeLogit(approaches []fit.Comparison, links []fit.Link) bool {
 		}
 	}
 	return true
+}
+
+// covarianceWords names the standard errors in the methods paragraph with
+// their sources: the sandwich estimator of one row per unit (HC0, HC1)
+// cites the heteroskedasticity-consistent estimator; the cluster-robust
+// sandwich (scores summed within clusters) the estimating-equation
+// sandwich with clusters, and its references on G-1 degrees of freedom
+// the guide to cluster-robust inference, which also covers the
+// delete-one-cluster jackknife.
+func covarianceWords(e runner.CovariancePolicy, cluster string, g int, c *citer) string {
+	cov := e.Phrase(cluster, g)
+	switch {
+	case e.Jackknife():
+		return cov + " " + c.cite("mnw")
+	case e.Covariance == fit.Clustered:
+		est := fit.Clustered.Phrase()
+		return strings.Replace(cov, est, est+" "+c.cite("liang"), 1) + " " + c.cite("mnw")
+	case e.Covariance == fit.Sandwich || e.Covariance == fit.SandwichPlain:
+		return cov + " " + c.cite("white")
+	}
+	return cov
 }
 
 // termTestsMethods says how each term of the chosen model was tested, and

@@ -5,6 +5,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 
@@ -193,5 +194,55 @@ func TestGoodnessOfFitMethodsOnlyChecksMade(t *testing.T) {
 	or.Lipsitz.Table = nil
 	if got := goodnessOfFitMethods(or, &citer{}); got != nil {
 		t.Errorf("nothing made: %q", got)
+	}
+}
+
+// TestMethodsCiteCovarianceSources: the Methods draft cites White (1980),
+// the heteroskedasticity-consistent covariance, for the sandwich
+// estimator of independent rows only; the cluster-robust sandwich cites
+// Liang and Zeger (1986), whose estimating-equation sandwich sums the
+// scores within clusters, beside the guide to cluster-robust inference for
+// its references on G-1 degrees of freedom; the delete-one-cluster
+// jackknife cites the guide alone; observed information cites neither.
+// Data: termData (seeded), clusters the 7 values of w. Citation numbers
+// are read as [n].
+func TestMethodsCiteCovarianceSources(t *testing.T) {
+	dir := t.TempDir()
+	termData(t, dir)
+	raw, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "d.csv"), withWeights(string(raw), func(i int) float64 { return float64(1 + i%7) }), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	base := strings.NewReplacer("EFFECTS", "parallel", "PARTIAL", "{}").Replace(termPlan)
+	clustered := strings.Replace(base, "data: {file: d.csv}", "data: {file: d.csv, cluster: w}", 1) + "covariance: clustered\n"
+	const white, liang, mnw = "White, H. (1980). A heteroskedasticity-consistent covariance matrix estimator", "Liang, K.-Y. & Zeger, S.L. (1986). Longitudinal data analysis using generalized linear models. Biometrika 73:13-22.", "MacKinnon, J.G., Nielsen, M.Ø. & Webb, M.D. (2023)"
+	for _, c := range []struct {
+		name, src, sentence string
+		cited, not          []string
+	}{
+		{"observed", base, "Standard errors came from the observed information.", nil, []string{white, liang, mnw}},
+		{"sandwich", base + "covariance: sandwich\n", "Standard errors came from the sandwich estimator with a small-sample factor [n].", []string{white}, []string{liang, mnw}},
+		{"sandwich_plain", base + "covariance: sandwich_plain\n", "Standard errors came from the sandwich estimator without a small-sample factor [n].", []string{white}, []string{liang, mnw}},
+		{"clustered", clustered, "Standard errors came from the cluster-robust sandwich estimator [n], its single estimates referred to t on G-1 = 6 degrees of freedom and its joint Wald tests of q restrictions as W (G-q)/((G-1) q) to F(q, G-q) (G = 7, the clusters of `w`) [n].", []string{liang, mnw}, []string{white}},
+		{"jackknife", clustered + "few_clusters: jackknife\n", "Standard errors came from the delete-one-cluster jackknife, its single estimates referred to t on G-1 = 6 degrees of freedom", []string{mnw}, []string{white, liang}},
+	} {
+		md := string(renderSource(t, dir, c.src, 1)["report.md"])
+		i := strings.Index(md, "## Methods (draft)")
+		if i < 0 {
+			t.Fatalf("%s: no Methods draft", c.name)
+		}
+		m := md[i:]
+		m = m[:strings.Index(m, "\n## ")+1]
+		m = regexp.MustCompile(`\[[0-9]+\] `).ReplaceAllString(m, "") // the list's numbers
+		m = regexp.MustCompile(`\[[0-9]+\]`).ReplaceAllString(m, "[n]")
+		hasAll(t, "Methods ("+c.name+")", m, append([]string{c.sentence}, c.cited...)...)
+		for _, bad := range c.not {
+			if strings.Contains(m, bad) {
+				t.Errorf("Methods (%s) cites %q", c.name, bad)
+			}
+		}
 	}
 }
