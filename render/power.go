@@ -124,6 +124,10 @@ func writePowerHypotheses(d *doc, op simulate.OutcomePower) {
 		rows = append(rows, append(row, strings.Join(un, " / ")))
 	}
 	d.table(head, rows)
+	if notes := mostlyUntested(op); len(notes) > 0 {
+		d.p("**Not testable in most replicates.** The chosen model lacked the parameters of these hypotheses (or no model was chosen) in more than half the replicates of a size, so their power above says mostly how often the rules choose a model that can test them, not how often a test of them rejects:")
+		d.list(notes)
+	}
 	// Power against n, one line per hypothesis.
 	l := charts.NewLine()
 	xs := make([]float64, len(op.Sizes))
@@ -153,6 +157,26 @@ func writePowerHypotheses(d *doc, op simulate.OutcomePower) {
 		l.AddSeries(h.Hypothesis, xyData(xs, ys), lineStyle(categoryColor(hi, max(2, len(op.Sizes[0].Hypotheses))), 2, false, true)...)
 	}
 	d.charts("Chart in power.html: power of each hypothesis against n.", newChart(fr, "Power of each plan hypothesis (share of replicates whose chosen model rejects it) against the sample size.", l))
+}
+
+// mostlyUntested lists the hypotheses of op untested (HypothesisPower.
+// Untested) in more than half the replicates of some size, each with those
+// sizes: "`H` (plan line L): 500 of 500 at n = 300".
+func mostlyUntested(op simulate.OutcomePower) []string {
+	var out []string
+	for hi, h := range op.Sizes[0].Hypotheses {
+		var at []string
+		for _, s := range op.Sizes {
+			hp := s.Hypotheses[hi]
+			if of := hp.Power.Of; of > 0 && 2*hp.Untested > of {
+				at = append(at, fmt.Sprintf("%d of %d at n = %d", hp.Untested, of, s.N))
+			}
+		}
+		if len(at) > 0 {
+			out = append(out, fmt.Sprintf("%s (plan line %d): %s", mdCode(h.Hypothesis), h.Line, strings.Join(at, "; ")))
+		}
+	}
+	return out
 }
 
 func writePowerModels(d *doc, op simulate.OutcomePower, generator string) {

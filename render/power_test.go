@@ -198,3 +198,26 @@ func TestTruncationWords(t *testing.T) {
 		t.Errorf("power study speaks of values drawn: %s", s)
 	}
 }
+
+// A hypothesis the chosen model could not test in more than half the
+// replicates of a size is named below the table, with those sizes: its
+// power is mostly the rate of choosing a model that can test it. One
+// untested in half or fewer is not.
+func TestPowerReportNamesMostlyUntested(t *testing.T) {
+	at := func(n, untested int) simulate.SizeResult {
+		return simulate.SizeResult{N: n, Hypotheses: []simulate.HypothesisPower{
+			{Hypothesis: "x[1] = x[2]", Line: 7, Power: simulate.Rate{Of: 10}, Untested: untested},
+			{Hypothesis: "z = 0", Line: 8, Power: simulate.Rate{Count: 6, Of: 10, Rate: 0.6}, Untested: 5}}}
+	}
+	pr := &simulate.PowerResult{Simulated: true, PlanFile: "p.yaml", PlanSHA256: "abc", Seed: 1, Generator: "cumulative logit",
+		Replicates: 10, Alpha: 0.05, Sizes: []int{100, 200}, Version: "0.1.0",
+		Outcomes: []simulate.OutcomePower{{Outcome: "y", Sizes: []simulate.SizeResult{at(100, 10), at(200, 4)}}}}
+	files, err := PowerOutputs(pr, &lock.Status{State: lock.StateNone, LockFile: "p.lock.json"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	md := string(files["power.md"])
+	if !strings.Contains(md, "**Not testable in most replicates.**") || !strings.Contains(md, "\n- `x[1] = x[2]` (plan line 7): 10 of 10 at n = 100\n\n") || strings.Contains(md, "- `z = 0` (plan line") {
+		t.Errorf("power.md:\n%s", md)
+	}
+}
