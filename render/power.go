@@ -46,6 +46,13 @@ func PowerOutputs(pr *simulate.PowerResult, reg *lock.Status) (map[string][]byte
 	d.p("**%s.** No real observation was used: `ordplan power` drew %d data sets at each sample size (%s) from the plan's `assumptions` and data dictionary (seed %d, %s model generating each outcome) and ran the plan's whole decision procedure on each: the grid of fits, the tests, the rules in order and the plan's hypotheses in the chosen model (Wald tests at alpha %g).%s Written by ordplan %s from the plan %s (sha256 `%s`).",
 		SimulatedMark, pr.Replicates, strings.Join(sizes, ", "), pr.Seed, pr.Generator, pr.Alpha, powerTests(pr), pr.Version, mdCode(pr.PlanFile), pr.PlanSHA256)
 	writeLockStatus(d, reg, pr.Version, powerLockWords, nil)
+	if len(pr.SensitivityNotRun) > 0 {
+		names := make([]string, len(pr.SensitivityNotRun))
+		for i, n := range pr.SensitivityNotRun {
+			names[i] = mdCode(n)
+		}
+		d.p("The plan's sensitivity analyses (%s) are not run in the replicates: every rate below is that of the primary analysis; `ordplan rehearse` runs them once on simulated data.", strings.Join(names, ", "))
+	}
 	if len(pr.Missing) > 0 {
 		d.p("%s In every replicate the plan's `data.missing` handled them as it will handle the real data's, so the rates below count the information the missing values take away.", simulatedMissingText(pr.Missing))
 	}

@@ -202,7 +202,8 @@ func TestTruncationWords(t *testing.T) {
 // A hypothesis the chosen model could not test in more than half the
 // replicates of a size is named below the table, with those sizes: its
 // power is mostly the rate of choosing a model that can test it. One
-// untested in half or fewer is not.
+// untested in half or fewer is not. The plan's sensitivity analyses,
+// which replicates do not run, are named.
 func TestPowerReportNamesMostlyUntested(t *testing.T) {
 	at := func(n, untested int) simulate.SizeResult {
 		return simulate.SizeResult{N: n, Hypotheses: []simulate.HypothesisPower{
@@ -211,12 +212,17 @@ func TestPowerReportNamesMostlyUntested(t *testing.T) {
 	}
 	pr := &simulate.PowerResult{Simulated: true, PlanFile: "p.yaml", PlanSHA256: "abc", Seed: 1, Generator: "cumulative logit",
 		Replicates: 10, Alpha: 0.05, Sizes: []int{100, 200}, Version: "0.1.0",
-		Outcomes: []simulate.OutcomePower{{Outcome: "y", Sizes: []simulate.SizeResult{at(100, 10), at(200, 4)}}}}
+		Outcomes: []simulate.OutcomePower{{Outcome: "y", Sizes: []simulate.SizeResult{at(100, 10), at(200, 4)}}},
+		SensitivityNotRun: []string{"imputed", "clustered"}}
 	files, err := PowerOutputs(pr, &lock.Status{State: lock.StateNone, LockFile: "p.lock.json"})
 	if err != nil {
 		t.Fatal(err)
 	}
 	md := string(files["power.md"])
+	// The plan's sensitivity analyses are said not to be run.
+	if !strings.Contains(md, "The plan's sensitivity analyses (`imputed`, `clustered`) are not run in the replicates: every rate below is that of the primary analysis") {
+		t.Errorf("power.md does not say the sensitivity analyses are not run:\n%s", md)
+	}
 	if !strings.Contains(md, "**Not testable in most replicates.**") || !strings.Contains(md, "\n- `x[1] = x[2]` (plan line 7): 10 of 10 at n = 100\n\n") || strings.Contains(md, "- `z = 0` (plan line") {
 		t.Errorf("power.md:\n%s", md)
 	}

@@ -206,7 +206,10 @@ type PowerResult struct {
 	Subset     []string       `json:"subset,omitempty"`
 	SubsetKept []KeptRows     `json:"subset_kept,omitempty"`
 	Outcomes   []OutcomePower `json:"outcomes"`
-	Version    string         `json:"version"`
+	// SensitivityNotRun names the plan's sensitivity analyses, which the
+	// replicates do not run (their power is that of the primary analysis).
+	SensitivityNotRun []string `json:"sensitivity_not_run,omitempty"`
+	Version           string   `json:"version"`
 }
 
 // replicate is what one run gave, per outcome.
@@ -269,6 +272,9 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 	}
 	for _, c := range p.Assumptions.Correlations {
 		res.Correlations = append(res.Correlations, fmt.Sprintf("%s, %s: r = %g", c.A, c.B, c.R))
+	}
+	for _, sa := range p.Sensitivity {
+		res.SensitivityNotRun = append(res.SensitivityNotRun, sa.Name)
 	}
 	res.Missing = sim.MissingRecord(nil, 0)
 	res.Weights = sim.WeightsRecord()
