@@ -212,7 +212,7 @@ func TestPowerReportNamesMostlyUntested(t *testing.T) {
 	}
 	pr := &simulate.PowerResult{Simulated: true, PlanFile: "p.yaml", PlanSHA256: "abc", Seed: 1, Generator: "cumulative logit",
 		Replicates: 10, Alpha: 0.05, Sizes: []int{100, 200}, Version: "0.1.0",
-		Outcomes: []simulate.OutcomePower{{Outcome: "y", Sizes: []simulate.SizeResult{at(100, 10), at(200, 4)}}},
+		Outcomes:          []simulate.OutcomePower{{Outcome: "y", Sizes: []simulate.SizeResult{at(100, 10), at(200, 4)}}},
 		SensitivityNotRun: []string{"imputed", "clustered"}}
 	files, err := PowerOutputs(pr, &lock.Status{State: lock.StateNone, LockFile: "p.lock.json"})
 	if err != nil {
