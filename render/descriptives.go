@@ -347,7 +347,7 @@ func pooledCriteriaText(sampling bool) string {
 	if sampling {
 		return "Log-likelihoods, AIC and BIC are means over the imputed sets of each set's pseudo-log-likelihood and its criteria: descriptive only; a rule on TIC compares the means over the sets of each set's TIC."
 	}
-	return "Log-likelihoods, AIC and BIC are means over the imputed sets: they are not the likelihood of one model, and rules on AIC or BIC compare these means."
+	return "Log-likelihoods, AIC and BIC are means over the imputed sets: they are not the likelihood of one model, and rules on AIC or BIC compare these means; a rule on TIC compares the means over the sets of each set's TIC."
 }
 
 // d1DenominatorText says which denominator degrees of freedom D1 takes

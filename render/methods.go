@@ -184,6 +184,9 @@ func writeMethods(d *doc, r *runner.Result) {
 		if len(rules) > 0 {
 			s = append(s, "The plan's decision rules were applied in order: "+strings.Join(rules, "; ")+".")
 		}
+		if slices.ContainsFunc(or.Rules, func(ro *runner.RuleOutcome) bool { return ro.Rule.By == "tic" }) {
+			s = append(s, strings.TrimSpace(runner.TICWords+". "+runner.TICCases(p.Data.Weights != "", r.Analysis.Errors.Sampling, or.Imputed != nil)))
+		}
 		if binary(or) {
 			s = append(s, binaryTestRulesMethods(or)...)
 		}

@@ -9,6 +9,7 @@ import (
 	"strings"
 	"testing"
 
+	"ordplan/internal/testsurvey"
 	"ordplan/plan"
 	"ordplan/runner"
 	"ordplan/runner/data"
@@ -242,6 +243,91 @@ func TestMethodsCiteCovarianceSources(t *testing.T) {
 		for _, bad := range c.not {
 			if strings.Contains(m, bad) {
 				t.Errorf("Methods (%s) cites %q", c.name, bad)
+			}
+		}
+	}
+}
+
+// TestTICSaysWhatIsComputed: where a rule chooses by TIC, the Methods
+// draft says what TIC is (runner.TICWords: -2 log-likelihood + 2 tr(A^-1
+// B) with the sandwich's pieces of independent rows) and, for sampling
+// weights, frequency weights and imputed sets, how fit.TIC and the pooling
+// compute it; under clustered errors the rule's caveat says the clusters
+// do not reach it. The decision log's penalty is tr(A^-1 B) of fit.TIC, on
+// imputed data the mean over the sets of each set's own (recomputed here
+// set by set), and TIC = -2 log-likelihood + 2 penalty with the
+// log-likelihood of the models' table (a mean over the sets there).
+// Data: termData (seeded, weights 1 to 7 in w) and testsurvey.Report's
+// imputed survey (seeded).
+func TestTICSaysWhatIsComputed(t *testing.T) {
+	dir := t.TempDir()
+	termData(t, dir)
+	raw, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	os.WriteFile(filepath.Join(dir, "d.csv"), withWeights(string(raw), func(i int) float64 { return float64(1 + i%7) }), 0o644)
+	sv := testsurvey.Report.Imputed(rand.New(rand.NewPCG(31, 4)), testsurvey.ImputedOptions{Rows: 240, Sets: 4, Missing: 0.25, Digits: 5})
+	os.WriteFile(filepath.Join(dir, "orig.csv"), []byte(sv.Orig), 0o644)
+	os.WriteFile(filepath.Join(dir, "stacked.csv"), []byte(sv.Stacked), 0o644)
+	base := strings.NewReplacer("EFFECTS", "parallel, nonparallel", "PARTIAL", "{}", "by: aic", "by: tic").Replace(termPlan)
+	const sampling, freq, imputed = "With the sampling weights, rescaled to sum to the rows used, A sums each row's information times its weight and B each row's outer product times its squared weight",
+		"With frequency weights each row's information and outer product count its weight",
+		"On the imputed data each set's TIC was computed with that set's fit and rows, and the rule compared their means over the sets."
+	const clusters = "TIC's penalty is made of each row's scores, as if every observation were independent: the clusters of w that the clustered standard errors allow for do not reach it"
+	for _, c := range []struct {
+		name, src string
+		has, not  []string
+	}{
+		{"plain", base, nil, []string{sampling, freq, imputed, clusters}},
+		{"sampling", strings.Replace(base, "data: {file: d.csv}", "data: {file: d.csv, weights: w, weight_kind: sampling}", 1), []string{sampling}, []string{freq, imputed}},
+		{"frequency", strings.Replace(base, "data: {file: d.csv}", "data: {file: d.csv, weights: w}", 1), []string{freq}, []string{sampling, imputed}},
+		{"clustered", strings.Replace(base, "data: {file: d.csv}", "data: {file: d.csv, cluster: w}", 1) + "covariance: clustered\n", []string{clusters}, []string{sampling, freq, imputed}},
+		{"imputed", "version: 1\ndata: {file: orig.csv, imputed: {file: stacked.csv, column: imp}}\noutcomes: [{column: y}]\npredictors: [x1, x2]\nmodels: {approaches: [cumulative], effects: [parallel, nonparallel]}\ntests: {parallel_lines: [lr]}\nrules:\n  - choose: {by: tic}\n",
+			[]string{imputed, "a rule on TIC compares the means over the sets of each set's TIC", "(means over the imputed sets of each set's own)"}, []string{sampling, freq}},
+	} {
+		path := filepath.Join(dir, c.name+".yaml")
+		os.WriteFile(path, []byte(c.src), 0o644)
+		res := runPlan(t, path, 1)
+		md := string(outputsOf(t, res)["report.md"])
+		m := md[strings.Index(md, "## Methods (draft)"):]
+		hasAll(t, "Methods ("+c.name+")", m, runner.TICWords+".")
+		hasAll(t, "report.md ("+c.name+")", md, c.has...)
+		for _, bad := range c.not {
+			if strings.Contains(md, bad) {
+				t.Errorf("report.md (%s) says %q", c.name, bad)
+			}
+		}
+		// The penalty and TIC of each model in the decision log.
+		or := res.Outcomes[0]
+		sampled := res.Analysis.Errors.Sampling
+		for i, f := range or.Fits {
+			if f.Auxiliary || !f.OK() {
+				continue
+			}
+			var pen, ll float64
+			if or.Imputed != nil {
+				for k, d := range or.Imputed.Sets {
+					_, p, err := fit.TIC(d, or.Imputed.Fits[k][i].Result, sampled)
+					if err != nil {
+						t.Fatal(err)
+					}
+					pen += p / float64(len(or.Imputed.Sets))
+				}
+			} else if _, pen, err = fit.TIC(or.FitData, f.Result, sampled); err != nil {
+				t.Fatal(err)
+			}
+			ll = f.Result.LogLik
+			want := fmt.Sprintf("TIC %.3f", -2*ll+2*pen)
+			wantPen := fmt.Sprintf("penalty tr(A^-1 B) = %.3f for %d parameters", pen, f.Result.NParams)
+			line := ""
+			for _, l := range strings.Split(md, "\n") {
+				if strings.HasPrefix(l, "| "+f.ID+" |") && strings.Contains(l, "penalty tr(A^-1 B)") {
+					line = l
+				}
+			}
+			if !strings.Contains(line, want) || !strings.Contains(line, wantPen) {
+				t.Errorf("%s, %s: decision log %q, want %q and %q", c.name, f.ID, line, want, wantPen)
 			}
 		}
 	}

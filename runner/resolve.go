@@ -148,7 +148,7 @@ func (c CovariancePolicy) fitOptions(workers int) fit.Options {
 
 // SamplingCriteriaNote is what the report says beside a table or chart of
 // AIC and BIC under sampling weights.
-const SamplingCriteriaNote = "The weights are sampling weights: the log-likelihoods are of a pseudo-likelihood, so AIC and BIC, here and in the chart, are descriptive only and not criteria for choosing a model; TIC (Takeuchi's criterion, whose penalty allows for the weights) is the criterion a rule may use."
+const SamplingCriteriaNote = "The weights are sampling weights: the log-likelihoods are of a pseudo-likelihood, so AIC and BIC, here and in the chart, are descriptive only and not criteria for choosing a model; TIC (Takeuchi's criterion, -2 log-likelihood + 2 tr(A^-1 B), its penalty made of the sandwich covariance's two pieces with the weights: A the weighted information, B the outer products of the rows' scores times their squared weights) is the criterion a rule may use."
 
 // Notes are the run-level remarks the policy brings to the report.
 func (c CovariancePolicy) Notes() []string {

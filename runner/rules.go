@@ -1186,7 +1186,34 @@ func (env *ruleEnv) criterionNote(by string, f *FitEntry) string {
 	if err != nil {
 		return ""
 	}
-	return fmt.Sprintf("TIC = -2 log-likelihood + 2 x penalty, penalty tr(A^-1 B) = %s for %d parameters", numfmt.Fixed(pen, 3), f.Result.NParams)
+	means := ""
+	if env.or.Imputed != nil {
+		means = " (means over the imputed sets of each set's own)"
+	}
+	return fmt.Sprintf("TIC = -2 log-likelihood + 2 x penalty, penalty tr(A^-1 B) = %s for %d parameters%s", numfmt.Fixed(pen, 3), f.Result.NParams, means)
+}
+
+// TICWords says in running prose what TIC is as fit.TIC computes it: the
+// one description of the criterion for the report's methods draft.
+const TICWords = "TIC, Takeuchi's criterion, is -2 log-likelihood + 2 tr(A^-1 B), its penalty made of the two pieces of the sandwich covariance of independent rows without a small-sample factor (A the observed information, B the sum of the outer products of the rows' scores): near the number of parameters when the model is right and, unlike AIC's, not assuming that it is, so that it serves a pseudo-likelihood"
+
+// TICCases says what TIC is on data with sampling weights, frequency
+// weights or imputed sets, as fit.TIC and pooledTIC compute it, one
+// sentence each for those that apply ("" for none); under clustered
+// errors the rule's own caveat says that the clusters do not reach it
+// (clusterCaveat).
+func TICCases(weights, sampling, imputed bool) string {
+	var s []string
+	switch {
+	case sampling:
+		s = append(s, "With the sampling weights, rescaled to sum to the rows used, A sums each row's information times its weight and B each row's outer product times its squared weight, so the penalty allows for the weights.")
+	case weights:
+		s = append(s, "With frequency weights each row's information and outer product count its weight, as for repeated rows.")
+	}
+	if imputed {
+		s = append(s, "On the imputed data each set's TIC was computed with that set's fit and rows, and the rule compared their means over the sets.")
+	}
+	return strings.Join(s, " ")
 }
 
 func indexVerdict(vs []Verdict, id string) int {
