@@ -145,3 +145,34 @@ func binaryData(t *testing.T) string {
 	}
 	return dir
 }
+
+// With two categories the pairs of levels name the one boundary, not
+// "every boundary", in their table and paragraph.
+func TestBinaryLevelPairsOneBoundary(t *testing.T) {
+	dir := t.TempDir()
+	var b strings.Builder
+	b.WriteString("x,g,y\n")
+	for i := range 180 {
+		fmt.Fprintf(&b, "%d,%s,%s\n", i%9, []string{"a", "b", "c"}[i%3], []string{"no", "yes"}[(i*7+i%9+i%3)%5/3])
+	}
+	if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	src := `version: 1
+data: {file: d.csv}
+outcomes: [{column: y, categories: ["no", "yes"]}]
+categorical:
+  g: {levels: [a, b, c]}
+predictors: [x, g]
+models: {approaches: [cumulative], effects: [parallel], links: [logit]}
+rules:
+  - choose: {by: aic}
+inference:
+  level_pairs: {predictors: [g]}
+`
+	md := string(renderSource(t, dir, src, 1)["report.md"])
+	hasAll(t, "report.md", md, "| c against b | no/yes |", "(whatever their coding), at the one boundary, with")
+	if strings.Contains(md, "one value at every boundary when those columns are parallel") || strings.Contains(md, "| every boundary |") {
+		t.Errorf("pairs of levels of one boundary speak of every boundary:\n%s", md)
+	}
+}

@@ -119,13 +119,7 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	}
 	var rows [][]string
 	for _, o := range tab.Rows {
-		at := "every boundary"
-		if len(res.Categories) == 2 {
-			at = res.Categories[0] + "/" + res.Categories[1] // the one boundary
-		}
-		if o.Boundary > 0 {
-			at = fmt.Sprintf("%d (%s/%s)", o.Boundary, res.Categories[o.Boundary-1], res.Categories[o.Boundary])
-		}
+		at := boundaryCell(o.Boundary, res.Categories)
 		row := []string{o.Predictor, o.Change}
 		if where {
 			row = append(row, o.HoldsAt)
@@ -322,4 +316,17 @@ func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 	}
 	caption := "For each category, the expected share of each group (line) and the observed share (points). Points far from their line, in a pattern, show where the model misfits; groups are ordered by predicted score."
 	return newChart(fr, caption, l).with(fig)
+}
+
+// boundaryCell names where a ratio holds in a table's Boundary column:
+// boundary m (1-based) by number and its two categories, 0 (one value for
+// all) "every boundary", or with two categories the one boundary "a/b".
+func boundaryCell(m int, categories []string) string {
+	switch {
+	case m > 0:
+		return fmt.Sprintf("%d (%s/%s)", m, categories[m-1], categories[m])
+	case len(categories) == 2:
+		return categories[0] + "/" + categories[1]
+	}
+	return "every boundary"
 }

@@ -246,8 +246,12 @@ func writePairOddsRatios(d *doc, or *runner.OutcomeResult, set runner.LevelPairS
 	if s := or.Design.Source(set.Predictor); s >= 0 && !slices.Contains([]string{design.Sum, design.Successive}, or.Design.Sources[s].Cat.Coding) {
 		above = fmt.Sprintf(" The pairs against %s are the odds ratios above.", mdText(set.Levels[0]))
 	}
-	d.p("The %s of one level against another (\"b against a\"): exp of the difference of the two levels' linear predictors through the columns of %s (whatever their coding), at each boundary (one value at every boundary when those columns are parallel), with %s intervals and p-values of the Wald %s of its log; the standard error of the log is the delta method's on the whole covariance.%s%s%s %s",
-		kind, mdText(set.Predictor), pct(level), refStat(res), above, at, pooled, pairFamilyText(set, "the pairs at one boundary"))
+	boundaries := " at each boundary (one value at every boundary when those columns are parallel),"
+	if len(res.Categories) == 2 {
+		boundaries = " at the one boundary,"
+	}
+	d.p("The %s of one level against another (\"b against a\"): exp of the difference of the two levels' linear predictors through the columns of %s (whatever their coding),%s with %s intervals and p-values of the Wald %s of its log; the standard error of the log is the delta method's on the whole covariance.%s%s%s %s",
+		kind, mdText(set.Predictor), boundaries, pct(level), refStat(res), above, at, pooled, pairFamilyText(set, "the pairs at one boundary"))
 	adj := pairAdjustment(set.Multiplicity)
 	head := []string{"Change", "Boundary", capitalize(kind), pct(level) + " low", pct(level) + " high", refStat(res), "p"}
 	if clusterRef(res) {
@@ -258,11 +262,7 @@ func writePairOddsRatios(d *doc, or *runner.OutcomeResult, set runner.LevelPairS
 	}
 	var rows [][]string
 	for _, o := range set.OddsRatios {
-		b := "every boundary"
-		if o.Boundary > 0 {
-			b = fmt.Sprintf("%d (%s/%s)", o.Boundary, res.Categories[o.Boundary-1], res.Categories[o.Boundary])
-		}
-		row := append(append([]string{o.Change, b}, numfmt.Ratios(o.Ratio, o.Low, o.High)...), numfmt.Z(o.Z), numfmt.PValue(o.P))
+		row := append(append([]string{o.Change, boundaryCell(o.Boundary, res.Categories)}, numfmt.Ratios(o.Ratio, o.Low, o.High)...), numfmt.Z(o.Z), numfmt.PValue(o.P))
 		if o.Adjusted != nil {
 			row = append(row, numfmt.PValue(*o.Adjusted))
 		}
