@@ -319,6 +319,26 @@ func TestImputedDifferentSets(t *testing.T) {
 	if h := pf.HeldAt(); !strings.Contains(h, "means over the rows of all 5 imputed sets") {
 		t.Errorf("grid: %s", h)
 	}
+	// The grid over x2, which has imputed values, spans its observed
+	// values (the file's, as the flags of extrapolation), not set 1's:
+	// a value of set 1 put beyond them (as a normal imputation model may
+	// draw) does not stretch it.
+	lo, hi, j := math.Inf(1), math.Inf(-1), slices.Index(or.Observed.Predictors, "x2")
+	for i := 0; i < or.Observed.N; i++ {
+		if v := or.Observed.X[i*or.Observed.K+j]; !math.IsNaN(v) {
+			lo, hi = math.Min(lo, v), math.Max(hi, v)
+		}
+	}
+	kept := or.Data.X[1]
+	or.Data.X[1] = hi + 100
+	px2, err := or.NewProfile("x2", nil)
+	or.Data.X[1] = kept
+	if err != nil {
+		t.Fatal(err)
+	}
+	if px2.Min != lo || px2.Max != hi {
+		t.Errorf("grid over x2 from %g to %g, want the observed range %g to %g", px2.Min, px2.Max, lo, hi)
+	}
 	if or.NewRows == nil || or.NewRows.Error != "" || or.NewRows.DF == nil {
 		t.Fatalf("predictions %+v", or.NewRows)
 	}

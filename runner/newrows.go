@@ -205,11 +205,7 @@ type sourceRanges struct {
 // fittedRanges gives the ranges of the outcome's numeric sources over the
 // rows used (or.Observed on imputed data).
 func (or *OutcomeResult) fittedRanges() *sourceRanges {
-	ref := or.Data
-	if or.Observed != nil {
-		ref = or.Observed
-	}
-	return newSourceRanges(or.Design, ref)
+	return newSourceRanges(or.Design, or.AsRead())
 }
 
 func newSourceRanges(dz *design.Design, ref *data.Dataset) *sourceRanges {

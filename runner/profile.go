@@ -65,16 +65,26 @@ func (or *OutcomeResult) NewProfile(focus string, fixed map[string]string) (*Pro
 		pf.Levels, _ = dz.Coded(s)
 		return pf, nil
 	}
-	S := len(dz.Sources)
+	// The grid spans the values the model was fitted to as the data hold
+	// them: on imputed data the observed values (AsRead, as the ranges
+	// that flag extrapolation, fittedRanges), not one imputed set's.
+	ref := or.AsRead()
+	j := slices.Index(ref.Predictors, dz.Sources[s].Name)
+	if j < 0 {
+		return nil, fmt.Errorf("the focus predictor %q is not a column of the data", focus)
+	}
 	pf.Min, pf.Max, pf.Binary = math.Inf(1), math.Inf(-1), true
-	for i := 0; i < or.Data.N; i++ {
-		v := or.Data.X[i*S+s]
+	for i := 0; i < ref.N; i++ {
+		v := ref.X[i*ref.K+j]
+		if math.IsNaN(v) {
+			continue
+		}
 		pf.Min, pf.Max = math.Min(pf.Min, v), math.Max(pf.Max, v)
 		if v != 0 && v != 1 {
 			pf.Binary = false
 		}
 	}
-	if or.Data.N == 0 {
+	if or.Data.N == 0 || math.IsInf(pf.Min, 1) {
 		return nil, fmt.Errorf("no observations to average over")
 	}
 	return pf, nil
