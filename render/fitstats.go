@@ -142,8 +142,7 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 }
 
 // cautionText is the sentence that follows a computed test whose pooling
-// rule warned (a D2 statistic set to 0, a D3 between-imputation part set
-// to 0), or nothing.
+// rule warned (a D3 between-imputation part set to 0), or nothing.
 func cautionText(t fit.Test) string {
 	if !t.OK || t.Warning == "" {
 		return ""
@@ -179,7 +178,9 @@ func writeGoodnessOfFit(d *doc, or *runner.OutcomeResult) {
 	if pl := or.GOFPooling; pl != nil {
 		d.p("On imputed data (%d sets): %s.", or.Imputed.M, pl.Note)
 	}
-	if lz.Test.OK && lz.Test.Pooled != "" {
+	if lz.Test.Negative && lz.Test.Pooled != "" {
+		d.p("Lipsitz test, pooled over the imputed sets by %s (approximate): %s, %s.", lz.Test.Pooled, runner.TestStatistic(lz.Test), lz.Test.Reason)
+	} else if lz.Test.OK && lz.Test.Pooled != "" {
 		d.p("Lipsitz test, pooled over the imputed sets by %s (approximate): %s, %s.%s", lz.Test.Pooled, runner.TestStatistic(lz.Test), numfmt.PText(lz.Test.P), cautionText(lz.Test))
 	} else if lz.Test.OK {
 		d.p("Lipsitz test: chi-square(%d) = %s, %s.", lz.Test.DF, numfmt.Stat(lz.Test.Chi2), numfmt.PText(lz.Test.P))
@@ -247,6 +248,8 @@ func writePatternSplit(d *doc, or *runner.OutcomeResult) {
 		test fit.Test
 	}{{"Pearson", t.Pearson}, {"Deviance", t.Deviance}} {
 		switch {
+		case ts.test.Negative && ts.test.Pooled != "":
+			d.p("%s, pooled over the imputed sets by %s (approximate; each set's statistic on chi-square(%d)): %s, %s.", ts.name, ts.test.Pooled, ts.test.DF, runner.TestStatistic(ts.test), ts.test.Reason)
 		case ts.test.OK && ts.test.Pooled != "":
 			d.p("%s, pooled over the imputed sets by %s (approximate; each set's statistic on chi-square(%d)): %s, %s.%s", ts.name, ts.test.Pooled, ts.test.DF, runner.TestStatistic(ts.test), numfmt.PText(ts.test.P), cautionText(ts.test))
 		case ts.test.OK:

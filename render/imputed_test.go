@@ -165,14 +165,15 @@ func TestImputedReport(t *testing.T) {
 		// be approximate, with its source.
 		"On imputed data (4 sets): each imputed set's rows are grouped by that set's own fitted scores",
 		// Here the four sets' statistics disagree more than D2 allows: D2
-		// is set to 0 (p = 1), with the caution that this p-value shows the
-		// disagreement, not a good fit, in the report and the Methods draft
-		// (which names the Lipsitz test, since it was computed).
+		// is set to 0 and the test has no p-value (the 1 of F = 0 would
+		// read as a perfect fit), said in the report and the Methods draft
+		// (which names the Lipsitz test, since its statistic was computed).
 		"(approximate): F(9, ",
-		") = 0.000 (pooled, D2), p = 1.0000. Caution: the D2 statistic came out negative and was set to 0 (p = 1): the 4 imputed sets' statistics (from ",
+		") = 0.000 (pooled, D2), no p-value: the D2 statistic came out negative and is shown as 0; the 4 imputed sets' statistics (from ",
+		"vary more than their size allows, so the pooled test is not informative (the p = 1 of F = 0 would not mean that the model fits).",
 		"The fit of the chosen model was checked with the Lipsitz test [",
 		"combined by the D2 rule [",
-		"For the Lipsitz test the D2 statistic came out negative and was set to 0 (p = 1), as is usual; that p-value says that the imputed sets' statistics disagree more than D2 allows, not that the model fits.",
+		"For the Lipsitz test the D2 statistic came out negative and was set to 0, as is usual, and no p-value is reported: a negative D2 says that the imputed sets' statistics disagree more than D2 allows, so the pooled test is not informative about the fit (the p-value of 1 that F = 0 would give does not mean that the model fits).",
 		"Li, K.H., Meng, X.L., Raghunathan, T.E. & Rubin, D.B. (1991). Significance levels from repeated p-values with multiply-imputed data.",
 		// The missing values are those of the original data file, named
 		// as such (it named the stacked file of the imputed sets).
@@ -181,6 +182,23 @@ func TestImputedReport(t *testing.T) {
 		"each p-value and interval refers to t on the estimate's Barnard-Rubin degrees of freedom",
 		"| Parameter | Estimate | Std. error | t | p | 95% low | 95% high |",
 	)
+	// No p-value is shown for that test: not 1.0000 in the report, an
+	// empty p with the reason in table-tests (its F of 0 and df kept).
+	if strings.Contains(md, "(pooled, D2), p = 1.0000") || strings.Contains(md, "Caution: the D2 statistic") {
+		t.Error("report.md shows p = 1 for a D2 statistic set to 0")
+	}
+	lipsitz := false
+	for _, r := range csvByHeader(t, "table-tests-y.csv", files["table-tests-y.csv"]) {
+		if r["test"] == "lipsitz" {
+			lipsitz = true
+			if r["f"] != "0" || r["df"] != "9" || r["df2"] == "" || r["p"] != "" || !strings.Contains(r["note"], "pooled over imputed sets (D2); no p-value: the D2 statistic came out negative and is shown as 0; ") {
+				t.Errorf("table-tests-y.csv, the Lipsitz test: %v", r)
+			}
+		}
+	}
+	if !lipsitz {
+		t.Error("table-tests-y.csv has no Lipsitz test")
+	}
 	// The observed counts of the goodness-of-fit table are means over the
 	// sets: each is written with one decimal, as the expected counts are.
 	gof := md[strings.Index(md, "Observed and expected counts by group of predicted score"):]

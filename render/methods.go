@@ -648,7 +648,7 @@ func goodnessOfFitMethods(or *runner.OutcomeResult, c *citer) []string {
 	}
 	var s, names []string
 	var pooled []fit.Test
-	if lz.Test.OK {
+	if lz.Test.OK || lz.Test.Negative {
 		s = append(s, fmt.Sprintf("The fit of the chosen model was checked with the Lipsitz test %s and by comparing observed and expected counts in groups of predicted score.", c.cite("lipsitz")))
 		names, pooled = append(names, "Lipsitz"), append(pooled, lz.Test)
 	} else {
@@ -660,7 +660,7 @@ func goodnessOfFitMethods(or *runner.OutcomeResult, c *citer) []string {
 			name string
 			test fit.Test
 		}{{"Pearson", ps.PatternSplit.Pearson}, {"deviance", ps.PatternSplit.Deviance}} {
-			if t.test.OK {
+			if t.test.OK || t.test.Negative {
 				done = append(done, t.name)
 				names, pooled = append(names, "Pulkstenis-Robinson "+t.name), append(pooled, t.test)
 			}
@@ -679,12 +679,12 @@ func goodnessOfFitMethods(or *runner.OutcomeResult, c *citer) []string {
 	s = append(s, fmt.Sprintf("On the imputed data %s computed on each imputed set with that set's fit of the chosen model, and the chi-square statistics were combined by the D2 rule %s, an approximation that is less powerful than the pooled tests of estimates or likelihoods.", these, c.cite("d2")))
 	var zero []string
 	for i, t := range pooled {
-		if t.Warning != "" {
+		if t.Negative {
 			zero = append(zero, names[i])
 		}
 	}
 	if len(zero) > 0 {
-		s = append(s, fmt.Sprintf("For the %s test%s the D2 statistic came out negative and was set to 0 (p = 1), as is usual; that p-value says that the imputed sets' statistics disagree more than D2 allows, not that the model fits.", strings.Join(zero, " and "), plural(len(zero))))
+		s = append(s, fmt.Sprintf("For the %s test%s the D2 statistic came out negative and was set to 0, as is usual, and no p-value is reported: a negative D2 says that the imputed sets' statistics disagree more than D2 allows, so the pooled test is not informative about the fit (the p-value of 1 that F = 0 would give does not mean that the model fits).", strings.Join(zero, " and "), plural(len(zero))))
 	}
 	return s
 }

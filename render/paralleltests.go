@@ -89,14 +89,14 @@ func (w poolingWarnings) write(d *doc) {
 // testRow is a test's row of a table of tests (label, statistic cells,
 // p); pooled: the table is of tests pooled over imputed sets (testHead).
 func testRow(label string, t fit.Test, pooled bool) []string {
-	if t.Negative { // the statistic shown, with why it has no p-value
-		return append(append([]string{label}, statCells(t, pooled)...), t.Reason)
-	}
-	if !t.OK {
+	if !t.OK && !t.Negative {
 		return append(append([]string{label}, emptyStat(pooled)...), "not computed: "+t.Reason)
 	}
 	if t.Pooled != "" {
 		label += " (pooled, " + t.Pooled + ")"
+	}
+	if t.Negative { // the statistic shown, with why it has no p-value
+		return append(append([]string{label}, statCells(t, pooled)...), t.Reason)
 	}
 	label += fReference(t)
 	return append(append([]string{label}, statCells(t, pooled)...), numfmt.PValue(t.P))

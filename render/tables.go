@@ -299,11 +299,11 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 	testsAbout := "every test of the report: parallel lines, nested likelihood ratios, each model against its thresholds-only model, the Lipsitz and Pulkstenis-Robinson tests, the plan's hypotheses, the tests of each term of the chosen model"
 	if imputed {
 		testsHead = []string{"family", "approach", "link", "scope", "test", "f", "df", "df2", "p", "note"}
-		testsAbout += "; on imputed data each test is pooled over the sets (D1, D2 or D3, in note): f its F statistic on df and df2 degrees of freedom (df2 inf when infinite), p from that F distribution"
+		testsAbout += "; on imputed data each test is pooled over the sets (D1, D2 or D3, in note): f its F statistic on df and df2 degrees of freedom (df2 inf when infinite), p from that F distribution; p empty where note says there is none (a D2 statistic below zero set to 0)"
 	}
 	testRow := func(family, approach, link, scope string, t fit.Test) {
 		row := []string{family, approach, link, scope, t.Name}
-		if !t.OK {
+		if !t.OK && !(t.Negative && t.Pooled != "") { // a pooled statistic below zero keeps its row
 			rows = append(rows, append(append(row, make([]string, len(testsHead)-6)...), t.Reason))
 			return
 		}
@@ -315,6 +315,9 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		}
 		if t.Warning != "" {
 			note += "; " + t.Warning
+		}
+		if t.Negative { // the statistic kept, p empty
+			note = strings.TrimPrefix(note+"; "+t.Reason, "; ")
 		}
 		if t.FRef {
 			note = fRefNote(t)

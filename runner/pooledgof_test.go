@@ -92,17 +92,18 @@ func TestPooledGoodnessOfFit(t *testing.T) {
 			t.Fatal(err)
 		}
 		g := c.got
-		if !g.OK || g.Name != c.name || g.Pooled != "D2" || g.DF != c.df || g.Chi2 != want.F*float64(c.df) || g.P != want.P || g.DF2 != want.DF2 {
+		if want.Warnings == "" && (!g.OK || g.P != want.P) || g.Name != c.name || g.Pooled != "D2" || g.DF != c.df || g.Chi2 != want.F*float64(c.df) || g.DF2 != want.DF2 {
 			t.Errorf("%s: %+v, want D2 %+v", c.name, g, want)
 		}
 		if !slices.Equal(g.BySet, c.by) {
 			t.Errorf("%s: statistics by set %v, want %v", c.name, g.BySet, c.by)
 		}
-		// A negative D2 is set to 0 (p = 1), the usual practice, and the
-		// test's warning says that this p-value shows the sets disagree.
+		// A negative D2 is set to 0, the usual practice, and the test has
+		// no p-value (the 1 of F = 0 would read as a perfect fit): its
+		// reason says that the sets disagree.
 		if want.Warnings != "" {
-			if g.P != 1 || g.Chi2 != 0 || !strings.HasPrefix(g.Warning, "the D2 statistic came out negative and was set to 0 (p = 1): the 4 imputed sets' statistics (from ") || !strings.HasSuffix(g.Warning, "so p = 1 says that the sets disagree, not that the model fits") {
-				t.Errorf("%s: D2 below 0 gives %+v, want 0 with p = 1 and the warning", c.name, g)
+			if g.OK || !g.Negative || !math.IsNaN(g.P) || g.Chi2 != 0 || !strings.HasPrefix(g.Reason, D2NegativeWords+"; the 4 imputed sets' statistics (from ") {
+				t.Errorf("%s: D2 below 0 gives %+v, want 0 with no p-value and the reason", c.name, g)
 			}
 		} else if g.Warning != "" {
 			t.Errorf("%s: warning %q on a positive D2", c.name, g.Warning)
@@ -135,8 +136,9 @@ func TestPooledGoodnessOfFit(t *testing.T) {
 // (7.8173/9 - 1.5 r)/(1 + r) = -0.0074 with r = 1.2 var(sqrt(d)) = 0.5869 (by
 // hand below), which mitml
 // leaves negative (it computes the formula as it stands): the pooled test
-// is set to 0 with p = 1, as is usual, keeps the sets' statistics, and
-// its warning says that p = 1 shows disagreement, not fit.
+// is set to 0, as is usual, keeps the sets' statistics, and has no p-value
+// (OK false, Negative, P NaN: the 1 of F = 0 would read as a perfect fit),
+// its reason saying that the sets disagree.
 func TestPooledChi2NegativeD2(t *testing.T) {
 	chi := []float64{7.724170720314078, 14.280725339636774, 6.695936285814923, 3.3120164958536407, 7.073863827351715}
 	per := make([]fit.Test, len(chi))
@@ -157,8 +159,8 @@ func TestPooledChi2NegativeD2(t *testing.T) {
 		t.Fatalf("D2 by hand %g is not negative: the case is not checked", raw)
 	}
 	g := pooledChi2("lipsitz", per)
-	want := "the D2 statistic came out negative and was set to 0 (p = 1): the 5 imputed sets' statistics (from 3.31202 to 14.2807 on 9 df) vary more than their size allows, so p = 1 says that the sets disagree, not that the model fits"
-	if !g.OK || g.Chi2 != 0 || g.P != 1 || g.DF != 9 || g.Pooled != "D2" || g.Warning != want || !slices.Equal(g.BySet, chi) {
+	want := "no p-value: the D2 statistic came out negative and is shown as 0; the 5 imputed sets' statistics (from 3.31202 to 14.2807 on 9 df) vary more than their size allows, so the pooled test is not informative (the p = 1 of F = 0 would not mean that the model fits)"
+	if g.OK || !g.Negative || g.Chi2 != 0 || !math.IsNaN(g.P) || g.DF != 9 || g.Pooled != "D2" || g.Reason != want || g.Warning != "" || !slices.Equal(g.BySet, chi) {
 		t.Errorf("pooled: %+v", g)
 	}
 	// A set's negative statistic counts as 0 in the statistics kept.

@@ -30,10 +30,12 @@ func (or *OutcomeResult) perSetOf(f *FitEntry) []*FitEntry {
 
 // pooledChi2 pools a chi-square test computed on each imputed set by D2.
 // A negative statistic of a set (possible for approximate likelihood-ratio
-// constructions) counts as 0. A negative D2 is set to 0 (p = 1), as is the
-// usual practice, and the test's warning says so and why: the p-value of 1
-// then tells that the sets disagree, not that the model fits. The sets'
-// statistics are kept in the test (BySet).
+// constructions) counts as 0. A negative D2 is set to 0, as is the usual
+// practice, but its p-value of 1 would read as a perfect fit where it
+// says only that the sets disagree: the test keeps its statistic (F = 0
+// on its df) and has no p-value (Negative, P NaN, OK false), Reason saying
+// why, so no table shows p = 1 and no rule reads it. The sets' statistics
+// are kept in the test (BySet).
 func pooledChi2(name string, per []fit.Test) fit.Test {
 	chi := make([]float64, len(per))
 	for k, t := range per {
@@ -53,11 +55,16 @@ func pooledChi2(name string, per []fit.Test) fit.Test {
 	t.Name = name
 	t.BySet = chi
 	if d.Warnings != "" {
-		t.Warning = fmt.Sprintf("the D2 statistic came out negative and was set to 0 (p = 1): the %d imputed sets' statistics (from %s to %s on %d df) vary more than their size allows, so p = 1 says that the sets disagree, not that the model fits",
-			len(chi), numfmt.Num(slices.Min(chi)), numfmt.Num(slices.Max(chi)), per[0].DF)
+		t.OK, t.Negative, t.P, t.Warning = false, true, math.NaN(), ""
+		t.Reason = fmt.Sprintf("%s; the %d imputed sets' statistics (from %s to %s on %d df) vary more than their size allows, so the pooled test is not informative (the p = 1 of F = 0 would not mean that the model fits)",
+			D2NegativeWords, len(chi), numfmt.Num(slices.Min(chi)), numfmt.Num(slices.Max(chi)), per[0].DF)
 	}
 	return t
 }
+
+// D2NegativeWords begins the reason of a test pooled by D2 whose statistic
+// came out below zero (pooledChi2).
+const D2NegativeWords = "no p-value: the D2 statistic came out negative and is shown as 0"
 
 // pooledScore is the score test of restricted (at each set's own
 // estimates) against model full, pooled by D2.
