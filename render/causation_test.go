@@ -42,3 +42,45 @@ func TestCausationSentence(t *testing.T) {
 		t.Errorf("every predictor by chance: %s", s)
 	}
 }
+
+// TestChanceTermTests: where the dictionary says a predictor was assigned
+// by chance, the tests of each term and the Methods draft give only that
+// term's slopes a causal reading (estimates of the effect of the
+// assignment, given other terms measured before it); with an interaction,
+// its own slopes are the effect where the other term is at its reference
+// (its columns at 0), and the other term's own slopes and test stay
+// associations. Data: termData (seeded; g in three levels, x numeric),
+// with g declared assigned_by_chance.
+func TestChanceTermTests(t *testing.T) {
+	dir := t.TempDir()
+	termData(t, dir)
+	base := strings.NewReplacer("EFFECTS", "parallel", "PARTIAL", "{}").Replace(termPlan) + "dictionary: {x: {label: x}, g: {assigned_by_chance: true}}\n"
+	methodsOf := func(md string) string { return md[strings.Index(md, "## Methods (draft)"):] }
+	termsOf := func(md string) string {
+		s := md[strings.Index(md, "#### Tests of each term"):]
+		return s[:strings.Index(s[4:], "\n#")+4]
+	}
+	const causal = "The values of `g` were assigned to the units by chance (the plan's dictionary says so, with assigned_by_chance), so its test and its slopes have a causal reading under the trial's conditions: if the assignment was made and kept as planned and the outcome recorded alike in every group, its slopes (on the model's scale) are estimates of the effect of the assignment given the other terms, which holds only if those terms were measured before the assignment (a term the assignment could have changed would take up part of its effect)."
+	const others = "For every other term (the interactions with a term assigned by chance read as above) a small p-value says the term is associated with the outcome given the other terms, not that it causes it."
+	const methods = "except that the slopes of `g`, assigned to the units by chance, estimate effects of the assignment under the trial's conditions, given the other terms, provided these were measured before the assignment"
+	const interaction = " (where such a term enters an interaction, its own slopes estimate the effect of the assignment where the other terms of the interaction have their columns at 0, the interaction how that effect differs with them, and those terms' own slopes remain associations)"
+
+	md := string(renderSource(t, dir, base, 1)["report.md"])
+	hasAll(t, "tests of each term (g alone)", termsOf(md), causal+" Its test asks whether the assignment changed the outcome at all.", others)
+	hasAll(t, "Methods (g alone)", methodsOf(md), methods+"; their p-values")
+	if strings.Contains(termsOf(md), "A small p-value says the term is associated") {
+		t.Error("the tests of each term deny every term a causal reading")
+	}
+
+	inter := strings.Replace(base, "predictors: [x, g]", "predictors: [x, g, {interact: [g, x]}]", 1)
+	md = string(renderSource(t, dir, inter, 1)["report.md"])
+	hasAll(t, "tests of each term (g&x)", termsOf(md), causal+" Tested together with g&x, its test asks whether the assignment changed the outcome for any value of x. Its own slopes estimate the effect of the assignment only where x = 0 (the other terms of the interaction at their reference, their columns at 0), and those of g&x how that effect differs with x: for whom the assignment changed the outcome more or less, not what x causes. The own slopes of x (where g = a) describe an association, not an effect of x, and its test, made with the same interaction, is not a test of an effect of x.", others)
+	hasAll(t, "Methods (g&x)", methodsOf(md), methods+interaction+"; their p-values")
+
+	// Without assigned_by_chance every term is an association.
+	md = string(renderSource(t, dir, strings.Replace(inter, "dictionary: {x: {label: x}, g: {assigned_by_chance: true}}\n", "", 1), 1)["report.md"])
+	hasAll(t, "tests of each term (no assignment by chance)", termsOf(md), "A small p-value says the term is associated with the outcome given the other terms, not that it causes it.")
+	if strings.Contains(md, "assigned_by_chance") || strings.Contains(md, "effect of the assignment") {
+		t.Error("a causal reading without a predictor assigned by chance")
+	}
+}

@@ -728,7 +728,10 @@ func termTestsMethods(r *runner.Result, or *runner.OutcomeResult, inf plan.Infer
 		for _, c := range chance {
 			code = append(code, mdCode(c))
 		}
-		cause = fmt.Sprintf("a term associated with the outcome given the others is not thereby a cause of it, except that the comparison of %s, assigned to the units by chance, has a causal reading under the trial's conditions", words.AndList(code))
+		cause = fmt.Sprintf("a term associated with the outcome given the others is not thereby a cause of it, except that the slopes of %s, assigned to the units by chance, estimate effects of the assignment under the trial's conditions, given the other terms, provided these were measured before the assignment", words.AndList(code))
+		if interactsWithChance(r.Plan, chance) {
+			cause += " (where such a term enters an interaction, its own slopes estimate the effect of the assignment where the other terms of the interaction have their columns at 0, the interaction how that effect differs with them, and those terms' own slopes remain associations)"
+		}
 	}
 	differ := "the Wald and likelihood-ratio statistics can differ in small samples"
 	if slices.Contains(or.Chosen.Result.Model.Effects, fit.Constrained) {

@@ -6,9 +6,11 @@ import (
 	"strconv"
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/plan"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
+	"ordplan/runner/design"
 	"ordplan/runner/fit"
 )
 
@@ -75,6 +77,10 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			d.p("**Degrees of freedom of the tests of %s:** %s.", mdText(tt.Term), mdText(tt.Bound))
 		}
 	}
+	chance := chanceTermsText(r, or)
+	if chance != "" {
+		d.p("%s", chance)
+	}
 	switch a := r.Analysis; {
 	case a != nil && a.Errors.Covariance == fit.Clustered && !a.Errors.Sampling && wald && lr:
 		g := runner.ClusterCount(or.Data)
@@ -97,7 +103,11 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		constrained = " A constrained effect is a product, b_m = φ_m g, so a test of its columns is not a test of parameters set to 0 one by one: its Wald statistic depends on how the model is parameterized (through φ and g), and it can differ from the likelihood ratio however many observations there are."
 	}
 	robustRead := "; read the likelihood-ratio tests"
-	tail := "With many observations the tests reject for effects too small to matter: read them with the estimates. A small p-value says the term is associated with the outcome given the other terms, not that it causes it. The p-values are not corrected for the number of terms tested (the plan's `inference.multiplicity` applies to its hypotheses only)."
+	associated := "A small p-value says the term is associated with the outcome given the other terms, not that it causes it."
+	if chance != "" {
+		associated = "For every other term (the interactions with a term assigned by chance read as above) a small p-value says the term is associated with the outcome given the other terms, not that it causes it."
+	}
+	tail := "With many observations the tests reject for effects too small to matter: read them with the estimates. " + associated + " The p-values are not corrected for the number of terms tested (the plan's `inference.multiplicity` applies to its hypotheses only)."
 	if a := r.Analysis; a != nil && a.Errors.Covariance.IsSandwich() {
 		// Clustered or sandwich errors, or sampling weights (which imply a
 		// sandwich): the likelihood ratio takes the rows as independent and
@@ -118,6 +128,78 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	if s := constrainedTermTests(or); s != "" {
 		d.p("**Constrained effects in %s:** %s. Their Wald statistics depend on the parameterization of the constraint%s.", or.Chosen.ID, s, robustRead)
 	}
+}
+
+// chanceTermsText says how the tests of the chosen model's terms read
+// whose column the plan's dictionary says was assigned to the units by
+// chance (assigned_by_chance), one sentence group per such term; "" when
+// there is none. Only such a term's own effect has a causal reading: its
+// slopes estimate the effect of the assignment given the other terms,
+// which holds if those were measured before the assignment; where it
+// enters an interaction its test (with the interactions) asks whether the
+// assignment changed the outcome anywhere, its own slopes give the effect
+// where the other terms of the interaction have their columns at 0 (their
+// reference), and the other terms' own effects stay associations.
+func chanceTermsText(r *runner.Result, or *runner.OutcomeResult) string {
+	if r.Plan == nil {
+		return ""
+	}
+	chance := r.Plan.ByChanceColumns()
+	if len(chance) == 0 {
+		return ""
+	}
+	specs := map[string]design.TermSpec{}
+	for _, t := range r.Plan.DesignSpec(or.Outcome).Terms {
+		specs[t.Name] = t
+	}
+	where := map[string]string{}
+	for _, c := range or.ColumnReadings() {
+		if c.Where != "" && where[c.Term] == "" {
+			where[c.Term] = c.Where
+		}
+	}
+	var out []string
+	for _, tt := range or.TermTests {
+		spec, ok := specs[tt.Term]
+		if tt.Group != nil || !ok || len(spec.Interact) > 0 || !slices.Contains(chance, spec.Source) {
+			continue
+		}
+		s := fmt.Sprintf("The values of %s were assigned to the units by chance (the plan's dictionary says so, with assigned_by_chance), so its test and its slopes have a causal reading under the trial's conditions: if the assignment was made and kept as planned and the outcome recorded alike in every group, its slopes (on the model's scale) are estimates of the effect of the assignment given the other terms, which holds only if those terms were measured before the assignment (a term the assignment could have changed would take up part of its effect).", mdCode(spec.Source))
+		var partners, partnersAt []string
+		for _, w := range tt.With {
+			for _, c := range specs[w].Interact {
+				if c != tt.Term && !slices.Contains(partners, mdText(c)) {
+					partners = append(partners, mdText(c))
+				}
+			}
+		}
+		if len(partners) == 0 {
+			out = append(out, s+" Its test asks whether the assignment changed the outcome at all.")
+			continue
+		}
+		var with []string
+		for _, w := range tt.With {
+			with = append(with, mdText(w))
+		}
+		at := "where the other terms of the interaction have their columns at 0"
+		if w := where[tt.Term]; w != "" {
+			at = fmt.Sprintf("where %s (the other terms of the interaction at their reference, their columns at 0)", mdText(w))
+		}
+		for _, c := range partners {
+			if w := where[c]; w != "" {
+				partnersAt = append(partnersAt, mdText(w))
+			}
+		}
+		own := ""
+		if len(partnersAt) > 0 {
+			own = " (where " + words.AndList(partnersAt) + ")"
+		}
+		p := words.AndList(partners)
+		s += fmt.Sprintf(" Tested together with %s, its test asks whether the assignment changed the outcome for any value of %s. Its own slopes estimate the effect of the assignment only %s, and those of %s how that effect differs with %s: for whom the assignment changed the outcome more or less, not what %s causes. The own slopes of %s%s describe an association, not an effect of %s, and its test, made with the same interaction, is not a test of an effect of %s.",
+			words.AndList(with), p, at, words.AndList(with), p, p, p, own, p, p)
+		out = append(out, s)
+	}
+	return strings.Join(out, " ")
 }
 
 // constrainedTermTests lists the term tests of the chosen model that

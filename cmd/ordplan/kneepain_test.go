@@ -39,7 +39,8 @@ func TestRegisteredExampleBeforeData(t *testing.T) {
 	}
 	// The arm was assigned by chance (dictionary.arm.assigned_by_chance):
 	// the limits give its comparison a causal reading under the trial's
-	// conditions and the other predictors none; the primary hypothesis,
+	// conditions and the other predictors none, and the Methods draft reads
+	// its slopes as effects of the assignment given terms measured before; the primary hypothesis,
 	// one restriction in a parallel model and one per boundary in the
 	// others, is said to take its form from the chosen model, in the limits
 	// and in the Methods draft.
@@ -50,7 +51,7 @@ func TestRegisteredExampleBeforeData(t *testing.T) {
 		"depended on the choice the rules made on the same data, and its p-value does not allow for that choice.",
 		"The plan's hypotheses were tested by Wald tests in every candidate model that has their parameters and are read in the chosen model, ",
 		"Where the candidates differ in the number of restrictions, the form of the test depended on the model the rules chose.",
-		"except that the comparison of `arm`, assigned to the units by chance, has a causal reading under the trial's conditions",
+		"except that the slopes of `arm`, assigned to the units by chance, estimate effects of the assignment under the trial's conditions, given the other terms, provided these were measured before the assignment;",
 		"| `arm` | predictor, assigned by chance | numeric | 0, 1 |",
 	} {
 		if !strings.Contains(string(md), want) {
