@@ -291,11 +291,7 @@ func sensitivityCSV(r *runner.Result, or *runner.OutcomeResult, level float64, l
 	}
 	add := func(analysis string, m runner.SensitivityModel) {
 		for _, e := range m.Estimates {
-			df := "inf"
-			if e.DF != nil {
-				df = csvNum(*e.DF)
-			}
-			rows = append(rows, []string{analysis, ParamLabel(or.Chosen.Result, e.Parameter), csvNum(e.Estimate), csvNum(e.StdError), csvNum(e.Lower), csvNum(e.Upper), e.Reference, df})
+			rows = append(rows, []string{analysis, ParamLabel(or.Chosen.Result, e.Parameter), csvNum(e.Estimate), csvNum(e.StdError), csvNum(e.Lower), csvNum(e.Upper), e.Reference, csvDFOf(e.DF)})
 		}
 	}
 	add("primary", runner.SensitivityModel{Estimates: runner.KeyEstimates(or.Chosen.Result, level)})
