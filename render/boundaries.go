@@ -37,7 +37,7 @@ func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		d.p("Not drawn: the plan fitted no %s model.", npID)
 		return
 	case !np.OK():
-		d.p("Not drawn: %s has no usable estimates (%s).", npID, mdText(fitProblem(np)))
+		d.p("Not drawn: %s has no usable estimates (%s).", npID, mdText(np.Problem()))
 		return
 	}
 	parID := fit.ModelID(approach, fit.ParallelEffects.String(), ch.Link)
@@ -123,16 +123,6 @@ func parallelName(par *runner.FitEntry, id string) string {
 		return "the parallel model (" + id + " has no usable estimates, so its line is missing)"
 	}
 	return id
-}
-
-func fitProblem(f *runner.FitEntry) string {
-	if f.Result == nil {
-		return "not fitted: " + f.Err
-	}
-	if f.Result.Message != "" {
-		return string(f.Result.Status) + ": " + f.Result.Message
-	}
-	return string(f.Result.Status)
 }
 
 // boundarySlopes returns the slopes of predictor k at every boundary of a

@@ -161,6 +161,12 @@ func PrimaryModelUnder(id string, sor *OutcomeResult, level float64) Sensitivity
 		m.NotFitted = "not in the grid of this sensitivity analysis"
 	case f.Result == nil:
 		m.NotFitted = "no fit: " + f.Err
+	case !f.OK():
+		// A fit without usable estimates (no finite maximum, not
+		// converged, a robust covariance that could not be computed) has
+		// no estimates to set beside the primary analysis's.
+		m.NotFitted = "no usable estimates: " + f.Problem()
+		m.Verdict = verdictText(f)
 	default:
 		m.Estimates = KeyEstimates(f.Result, level)
 		m.Verdict = verdictText(f)

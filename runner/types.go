@@ -153,6 +153,21 @@ type FitEntry struct {
 // usable, so that no test or interval reads the covariance it kept.
 func (f *FitEntry) OK() bool { return f != nil && f.Result != nil && f.Err == "" && f.Result.OK() }
 
+// Problem says why a fit that is not OK has no usable estimates: not
+// fitted (its error), its status and message (no finite maximum, not
+// converged, ...), or the covariance step that failed.
+func (f *FitEntry) Problem() string {
+	switch {
+	case f.Result == nil:
+		return "not fitted: " + f.Err
+	case !f.Result.OK() && f.Result.Message != "":
+		return string(f.Result.Status) + ": " + f.Result.Message
+	case !f.Result.OK() || f.Err == "":
+		return string(f.Result.Status)
+	}
+	return f.Err
+}
+
 // likelihoodUsable: the entry's log-likelihood can enter criteria and
 // likelihood ratios (fit.Result.LikelihoodUsable).
 func (f *FitEntry) likelihoodUsable() bool {

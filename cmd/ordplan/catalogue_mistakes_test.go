@@ -104,6 +104,22 @@ func mistakeItems(dir string) []badInput {
 		{id: "P4", name: "a number too large for any number", args: []string{"check", "--no-data"}, code: 1,
 			plan: edit("version: 1\n", "version: 1\nseed: 1e400\n"),
 			want: []string{`P4.yaml:2:7: seed: want a whole number from 0 to 18446744073709551615, got number 1e400, too large for any number (beyond about 1.8e308)`}},
+		{id: "P67", name: "a sensitivity analysis under which the primary's chosen model has no usable fit", args: []string{"run"}, code: 0,
+			plan: "version: 1\ndata: {file: sep.csv}\noutcomes: [{column: y}]\npredictors: [z]\nmodels: {approaches: [cumulative], effects: [parallel]}\n" +
+				"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\nsensitivity:\n  - name: with_x\n    why: w\n    change: {predictors: [z, x]}\n",
+			want: []string{"y: chosen: cumulative/parallel/logit", "sensitivity analysis with_x: y: no model chosen"},
+			known: func(out, errs string, code int) string {
+				if strings.Contains(errs, "internal error") {
+					return "the table of estimates under each analysis read the standard errors of a fit that had none (index out of range), and the run stopped without writing its outputs"
+				}
+				return ""
+			},
+			check: func(t *testing.T, dir, out, errs string) {
+				rep, _ := os.ReadFile(filepath.Join(dir, "P67-out", "report.md"))
+				if !strings.Contains(string(rep), "Not fitted under: with_x: no usable estimates: no_finite_maximum: no finite maximum likelihood estimate") {
+					t.Errorf("the report does not say why the model has no estimates under with_x")
+				}
+			}},
 		{id: "P66", name: "ordplan init into a folder that does not exist", args: []string{"init", filepath.Join(dir, "P66-nodir", "x.yaml"), "--data", filepath.Join(dir, "d.csv")}, code: 1,
 			want:  []string{"ordplan: init: cannot write P66-nodir/x.yaml: the folder P66-nodir does not exist: make it first, or give another path"},
 			check: noFolder("P66-nodir")},
