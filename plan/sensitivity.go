@@ -99,7 +99,10 @@ func (d *decoder) readSensitivity(root, n *yaml.Node, p *Plan, withData bool) *s
 		return nil
 	}
 	out := &sensitivityRead{}
-	names := map[string]int{}
+	names := map[string]struct {
+		name string
+		line int
+	}{}
 	for i, it := range items {
 		path := itemPath("sensitivity", i)
 		m := d.mapping(it, path, sensitivityItemKeys)
@@ -113,13 +116,25 @@ func (d *decoder) readSensitivity(root, n *yaml.Node, p *Plan, withData bool) *s
 		s := Sensitivity{Key: path, Line: m.node.Line}
 		if v := m.required("name"); v != nil {
 			if name, ok := d.name(v, m.at("name")); ok {
-				if line, dup := names[name]; dup {
-					d.errorf(deref(v), m.at("name"), "%s already names the sensitivity analysis at line %d; give each its own name", quote(name), line)
-				}
-				if k := strings.ToLower(strings.TrimSpace(name)); k == "primary" || k == "primary analysis" {
+				// Names are told apart as a reader of the report does:
+				// without the spaces around them and the letter case.
+				k := strings.ToLower(strings.TrimSpace(name))
+				switch prev, dup := names[k]; {
+				case k == "":
+					d.errorf(deref(v), m.at("name"), "%s is only spaces; give the sensitivity analysis a name the report can show", quote(name))
+				case dup && prev.name == name:
+					d.errorf(deref(v), m.at("name"), "%s already names the sensitivity analysis at line %d; give each its own name", quote(name), prev.line)
+				case dup:
+					d.errorf(deref(v), m.at("name"), "%s differs from %s, the name of the sensitivity analysis at line %d, only in letter case or spaces, and the report would show the two alike; give each its own name", quote(name), quote(prev.name), prev.line)
+				case k == "primary" || k == "primary analysis":
 					d.errorf(deref(v), m.at("name"), "%s names the primary analysis in the report and its tables; give the sensitivity analysis a name of its own", quote(name))
 				}
-				names[name] = m.node.Line
+				if _, dup := names[k]; !dup {
+					names[k] = struct {
+						name string
+						line int
+					}{name, m.node.Line}
+				}
 				s.Name = name
 			}
 		}
