@@ -150,7 +150,7 @@ func dataChanges(prev *Decisions, prevRec *RunRecord, cur *Decisions, cols []Out
 		}
 	default:
 		for _, c := range ColumnChanges(prevRec.DataColumns, cols) {
-			if dataChanged || !strings.Contains(c, noColumnChanged) {
+			if dataChanged || !strings.Contains(c, noColumnChanged) && !strings.Contains(c, notComparedLead) {
 				out = append(out, c+".")
 			}
 		}

@@ -323,11 +323,16 @@ const noColumnChanged = "no column this outcome uses changed in the rows it uses
 func outcomeColumnChanges(was, now OutcomeColumns) []string {
 	type pair struct{ was, now ColumnPrint }
 	var pairs []pair
+	var unpaired []string // columns the earlier record does not hold in their role
 	for _, c := range now.Columns {
+		n := len(pairs)
 		for _, w := range was.Columns {
 			if w.Column == c.Column && w.Role == c.Role {
 				pairs = append(pairs, pair{w, c})
 			}
+		}
+		if len(pairs) == n {
+			unpaired = append(unpaired, fmt.Sprintf("%s (%s)", c.Column, c.Role))
 		}
 	}
 	var moved, changed int
@@ -348,6 +353,17 @@ func outcomeColumnChanges(was, now OutcomeColumns) []string {
 		}
 	}
 	who := now.Outcome + ": "
+	// Rows that differ where no column compared differs differ in a
+	// column the earlier record does not hold (not read then, or not in
+	// this role, or a record edited since): whether it changed cannot be
+	// said, and no column may be said to be unchanged.
+	var notCompared string
+	if len(unpaired) > 0 && !sameRows(was, now) {
+		notCompared = fmt.Sprintf("%s%s %s, which this run reads (that run did not read %s in this role, or its record was edited since), so whether %s changed cannot be said", who, notComparedLead, strings.Join(unpaired, ", "), pronoun(len(unpaired), "it", "them"), pronoun(len(unpaired), "it", "they"))
+	}
+	if changed == 0 && moved == 0 && notCompared != "" {
+		return []string{notCompared + "; no column both runs read changed in the rows used"}
+	}
 	if changed == 0 && moved == 0 {
 		return []string{who + noColumnChanged + " (the data changed in columns it does not read, or in rows it does not use: outside the subset, or dropped for a missing value)"}
 	}
@@ -367,7 +383,22 @@ func outcomeColumnChanges(was, now OutcomeColumns) []string {
 			out = append(out, lead+"other values, with the same "+sameSummaries(p.now))
 		}
 	}
+	if notCompared != "" {
+		out = append(out, notCompared)
+	}
 	return out
+}
+
+// notComparedLead begins the line of the columns the earlier record does
+// not hold.
+const notComparedLead = "the earlier run's record has no fingerprint of"
+
+// pronoun is one for a single thing, many for several.
+func pronoun(n int, one, many string) string {
+	if n == 1 {
+		return one
+	}
+	return many
 }
 
 // sameSummaries names the summaries of a column that did not change.

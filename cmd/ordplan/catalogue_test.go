@@ -2108,6 +2108,25 @@ func catalogue(dir string) (items []badInput) {
 				})
 			},
 			want: []string{"change: The earlier run did not record per-column fingerprints of its data (its run.json was written by an older ordplan), so which columns of the data changed cannot be said.\n"}},
+		{id: "R13", name: "--previous naming a run whose record holds no fingerprint of columns this run reads", args: []string{"run", "--previous", filepath.Join(dir, "R13-first")}, plan: goodPlan, code: 0,
+			setup: func(t *testing.T, dir, id string) {
+				earlierRun(t, dir, id, func(rec string) string {
+					var r map[string]any
+					if err := json.Unmarshal([]byte(rec), &r); err != nil {
+						t.Fatal(err)
+					}
+					r["data_columns"].([]any)[0].(map[string]any)["columns"] = []any{}
+					b, _ := json.Marshal(r)
+					return string(b)
+				})
+			},
+			want: []string{"change: y: the earlier run's record has no fingerprint of y (outcome), a (predictor), b (predictor), which this run reads (that run did not read them in this role, or its record was edited since), so whether they changed cannot be said; no column both runs read changed in the rows used.\n"},
+			known: func(out, errs string, code int) string {
+				if strings.Contains(out, "no column this outcome uses changed") {
+					return "with the data changed, no column was said to have changed, as no column this run reads was in the earlier record to compare"
+				}
+				return ""
+			}},
 		{id: "O2", name: "second run into a folder being written", args: []string{"run"}, plan: goodPlan, code: 1,
 			want: []string{"O2-out: another ordplan run is writing there (held by process "}},
 		{id: "O3", name: "outcomes that map to one file name", args: []string{"run"},
