@@ -4,6 +4,8 @@ import (
 	"math"
 	"strconv"
 
+	"ordplan/runner/data"
+
 	"gopkg.in/yaml.v3"
 )
 
@@ -91,10 +93,20 @@ func (d *decoder) integerWant(n *yaml.Node, path, want string) (int64, bool) {
 	n = deref(n)
 	var v int64
 	if n == nil || n.Kind != yaml.ScalarNode || n.ShortTag() != "!!int" || n.Decode(&v) != nil {
-		d.errorf(n, path, "want %s, got %s", want, describe(n))
+		d.errorf(n, path, "want %s, got %s%s", want, describe(n), numberTextHint(n))
 		return 0, false
 	}
 	return v, true
+}
+
+// numberTextHint is what follows the message for a value that is not a
+// number where one is wanted, when it is text that would be a number
+// written with a plan's ASCII minus and decimal point (data.PlanNumberHint).
+func numberTextHint(n *yaml.Node) string {
+	if n == nil || n.Kind != yaml.ScalarNode || n.ShortTag() != "!!str" {
+		return ""
+	}
+	return data.PlanNumberHint(n.Value)
 }
 
 // unsigned reads a whole number from 0 to 2^64-1.
@@ -119,7 +131,7 @@ func (d *decoder) numberWant(n *yaml.Node, path, want string) (float64, bool) {
 	n = deref(n)
 	var v float64
 	if n == nil || n.Kind != yaml.ScalarNode || (n.ShortTag() != "!!int" && n.ShortTag() != "!!float") || n.Decode(&v) != nil {
-		d.errorf(n, path, "want %s, got %s", want, describe(n))
+		d.errorf(n, path, "want %s, got %s%s", want, describe(n), numberTextHint(n))
 		return 0, false
 	}
 	if math.IsNaN(v) || math.IsInf(v, 0) {

@@ -494,7 +494,15 @@ func (d *decoder) decodeSubset(n *yaml.Node) []data.Condition {
 				if o.op == "!=" {
 					list = "none_of"
 				}
-				d.errorf(t, m.at(o.key), "want a number, got string %s: %s compares numbers; to compare the text, write %s: [%s]", quote(t.Value), o.key, list, t.Value)
+				if h := numberTextHint(t); h != "" {
+					d.errorf(t, m.at(o.key), "want a number, got string %s%s", quote(t.Value), h)
+					continue
+				}
+				item := t.Value
+				if strings.ContainsAny(item, ",[]{}#:&*!|>'\"%@`") || item != strings.TrimSpace(item) {
+					item = quote(item) // read as one text in a flow list
+				}
+				d.errorf(t, m.at(o.key), "want a number, got string %s: %s compares numbers; to compare the text, write %s: [%s]", quote(t.Value), o.key, list, item)
 			default:
 				c.Number, _ = d.number(v, m.at(o.key))
 			}

@@ -120,6 +120,18 @@ func mistakeItems(dir string) []badInput {
 					t.Errorf("the report does not say why the model has no estimates under with_x")
 				}
 			}},
+		{id: "P68", name: "a plan's number written with the data's decimal comma or a typeset minus sign", args: []string{"check", "--no-data"}, code: 1, lines: true,
+			plan: edit("  file: d.csv\n", "  file: semi.csv\n  delimiter: semicolon\n  decimal: comma\n") +
+				"subset:\n  - {column: a, greater_than: \"0,2\"}\n  - {column: b, equal_to: \"1,000\"}\n  - {column: a, less_than: \u22120.5}\n",
+			want: []string{`P68.yaml:17:31: subset[0].greater_than: want a number, got string "0,2"; it has a decimal comma, and a plan writes numbers with a decimal point whatever the data's decimal mark (data.decimal): write 0.2`,
+				`P68.yaml:18:27: subset[1].equal_to: want a number, got string "1,000"; it has a decimal comma, and a plan writes numbers with a decimal point whatever the data's decimal mark (data.decimal): write 1.000 (or 1000 if the comma separates thousands)`,
+				`P68.yaml:19:28: subset[2].less_than: want a number, got string "−0.5"; it holds the character U+2212 (MINUS SIGN) where a number has the ASCII hyphen-minus "-": write -0.5`},
+			known: func(out, errs string, code int) string {
+				if strings.Contains(errs, "write one_of: [1,000]") {
+					return "the hint for a decimal-comma number under equal_to was one_of: [1,000], a list of the two numbers 1 and 0"
+				}
+				return ""
+			}},
 		{id: "P66", name: "ordplan init into a folder that does not exist", args: []string{"init", filepath.Join(dir, "P66-nodir", "x.yaml"), "--data", filepath.Join(dir, "d.csv")}, code: 1,
 			want:  []string{"ordplan: init: cannot write P66-nodir/x.yaml: the folder P66-nodir does not exist: make it first, or give another path"},
 			check: noFolder("P66-nodir")},

@@ -434,6 +434,19 @@ var lookalikes = map[rune]string{
 // (−1.5 written with U+2212), which character it holds and what to write;
 // "" otherwise.
 func lookalikeHint(cell string, d Dialect) string {
+	fixed, found := minusLookalikes(cell)
+	if len(found) == 0 {
+		return ""
+	}
+	if _, msg := d.number(fixed); msg != "" {
+		return ""
+	}
+	return fmt.Sprintf("; it holds the character %s where a number has the ASCII hyphen-minus \"-\": write it %s (a word processor or a typeset table may have replaced the sign)", strings.Join(found, " and "), fixed)
+}
+
+// minusLookalikes gives s with the ASCII hyphen-minus in place of each
+// character that looks like it (lookalikes), and those characters named.
+func minusLookalikes(s string) (string, []string) {
 	var found []string
 	fixed := strings.Map(func(c rune) rune {
 		if name, ok := lookalikes[c]; ok {
@@ -443,14 +456,38 @@ func lookalikeHint(cell string, d Dialect) string {
 			return '-'
 		}
 		return c
-	}, cell)
-	if len(found) == 0 {
+	}, s)
+	return fixed, found
+}
+
+// PlanNumberHint is what follows a plan's message for a text where a
+// number is wanted (a subset's threshold, a range, a knot), when the
+// text would be a number but for a character that looks like the minus
+// sign (−1.5) or a decimal comma (0,5, as a decimal-comma data file
+// writes it): which, and the number to write, since a plan writes its
+// numbers with the ASCII minus and a decimal point whatever data.decimal
+// says; "" otherwise.
+func PlanNumberHint(s string) string {
+	fixed, found := minusLookalikes(strings.TrimSpace(s))
+	var why []string
+	if len(found) > 0 {
+		why = append(why, fmt.Sprintf("it holds the character %s where a number has the ASCII hyphen-minus \"-\"", strings.Join(found, " and ")))
+	}
+	or := ""
+	if i := strings.IndexByte(fixed, ','); i >= 0 && strings.Count(fixed, ",") == 1 && !strings.ContainsRune(fixed, '.') {
+		if thousands(fixed[:i], fixed[i+1:]) {
+			or = " (or " + fixed[:i] + fixed[i+1:] + " if the comma separates thousands)"
+		}
+		fixed = fixed[:i] + "." + fixed[i+1:]
+		why = append(why, "it has a decimal comma, and a plan writes numbers with a decimal point whatever the data's decimal mark (data.decimal)")
+	}
+	if len(why) == 0 {
 		return ""
 	}
-	if _, msg := d.number(fixed); msg != "" {
+	if _, msg := parseNumber(fixed); msg != "" {
 		return ""
 	}
-	return fmt.Sprintf("; it holds the character %s where a number has the ASCII hyphen-minus \"-\": write it %s (a word processor or a typeset table may have replaced the sign)", strings.Join(found, " and "), fixed)
+	return "; " + strings.Join(why, ", and ") + ": write " + fixed + or
 }
 
 // outcomeHint is what follows the message for an outcome cell of column
