@@ -11,7 +11,8 @@ import (
 // The limits read causes only where the plan says a predictor was assigned
 // by chance (dictionary: assigned_by_chance): without one, association for
 // every predictor; with one, a causal reading of its comparison under the
-// trial's conditions, association for the others, and an interaction with
+// trial's conditions, given the others only if measured before the
+// assignment, association for the others, and an interaction with
 // it read as for whom, not as what the other predictor causes.
 func TestCausationSentence(t *testing.T) {
 	p := &plan.Plan{Terms: []design.TermSpec{{Name: "arm", Source: "arm"}, {Name: "age", Source: "age"}}}
@@ -24,6 +25,7 @@ func TestCausationSentence(t *testing.T) {
 		"`arm` was assigned to the units by chance",
 		"has a causal reading under the conditions of the trial",
 		"The other predictors (`age`) were not assigned by chance",
+		"holds only if they were measured before the assignment",
 	} {
 		if !strings.Contains(s, want) {
 			t.Errorf("lacks %q: %s", want, s)
@@ -38,7 +40,7 @@ func TestCausationSentence(t *testing.T) {
 	}
 	// Every predictor assigned by chance: no sentence on other predictors.
 	p.Dictionary[1].ByChance = true
-	if s := causationSentence(p); !strings.Contains(s, "`arm` and `age` were assigned to the units by chance") || strings.Contains(s, "other predictors") {
+	if s := causationSentence(p); !strings.Contains(s, "`arm` and `age` were assigned to the units by chance") || strings.Contains(s, "other predictors") || strings.Contains(s, "measured before") {
 		t.Errorf("every predictor by chance: %s", s)
 	}
 }

@@ -51,7 +51,7 @@ func writeLevelPairs(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			d.p("%s", samplingAverageNote)
 		}
 		if assignedByChance(r.Plan, set.Predictor) {
-			d.p("The levels of %s were assigned to the units by chance (the plan's dictionary says so): under the trial's conditions these differences are what assigning one level rather than the other changed in the outcome, for units like those that took part, other predictors as observed.", name)
+			d.p("The levels of %s were assigned to the units by chance (the plan's dictionary says so): under the trial's conditions these differences are what assigning one level rather than the other changed in the outcome, for units like those that took part, other predictors as observed, provided those were measured before the assignment (one the assignment could have changed would take up part of the difference).", name)
 		} else {
 			d.p("These are differences between groups in the fitted association, other predictors as observed: they do not say what moving a unit from one level to the other would change.")
 		}
@@ -359,9 +359,9 @@ func levelPairsMethods(p *plan.Plan, or *runner.OutcomeResult) string {
 	case len(chance) == 0:
 		return s + " They compare groups in the fitted association and are not effects of changing a unit's level."
 	case len(other) == 0:
-		return s + fmt.Sprintf(" The levels of %s were assigned to the units by chance, so under the trial's conditions these differences are effects of assigning one level rather than the other.", words.AndList(chance))
+		return s + fmt.Sprintf(" The levels of %s were assigned to the units by chance, so under the trial's conditions these differences are effects of assigning one level rather than the other, provided the other predictors were measured before the assignment.", words.AndList(chance))
 	}
-	return s + fmt.Sprintf(" Those of %s, whose levels were assigned to the units by chance, are effects of assigning one level rather than the other under the trial's conditions; those of %s compare groups in the fitted association and are not effects of changing a unit's level.", words.AndList(chance), words.AndList(other))
+	return s + fmt.Sprintf(" Those of %s, whose levels were assigned to the units by chance, are effects of assigning one level rather than the other under the trial's conditions, provided the other predictors were measured before the assignment; those of %s compare groups in the fitted association and are not effects of changing a unit's level.", words.AndList(chance), words.AndList(other))
 }
 
 // assignedByChance reports whether the plan's dictionary says that the

@@ -152,7 +152,8 @@ func TestLevelPairsAssignedByChance(t *testing.T) {
 	hasAll(t, "report.md (site assigned by chance)", md,
 		"The levels of site were assigned to the units by chance (the plan's dictionary says so): under the trial's conditions these differences are what assigning one level rather than the other changed in the outcome",
 		"and, the levels having been assigned by chance, it is what assigning one level rather than the other changed for such units under the trial's conditions.",
-		"The levels of site were assigned to the units by chance, so under the trial's conditions these differences are effects of assigning one level rather than the other.")
+		"The levels of site were assigned to the units by chance, so under the trial's conditions these differences are effects of assigning one level rather than the other, provided the other predictors were measured before the assignment.",
+		"other predictors as observed, provided those were measured before the assignment")
 	for _, not := range []string{"They compare groups in the fitted association", "These are differences between groups in the fitted association", "it does not say what moving a unit"} {
 		if strings.Contains(md, not) {
 			t.Errorf("report.md of a site assigned by chance holds %q", not)

@@ -421,6 +421,7 @@ func causationSentence(p *plan.Plan) string {
 	if len(others) == 0 {
 		return s
 	}
+	s += " That reading is of the comparison given the other predictors in the models, and holds only if they were measured before the assignment: a predictor the assignment could itself have changed would take up part of its effect."
 	s += fmt.Sprintf(" The other predictors (%s) were not assigned by chance: the models describe how the outcome is associated with them in these data, which does not show that they cause a change in it; neither do their predicted probabilities or marginal effects, which are summaries of the same fitted association.", words.AndList(others))
 	if interactsWithChance(p, chance) {
 		s += " Where the effect of an assignment differs with another predictor (an interaction), that describes for whom the assignment changed the outcome more or less, not what the other predictor causes."
