@@ -165,7 +165,11 @@ func (d *decoder) checkDictionary(p *Plan) {
 		if u.Role == RoleCluster && (e.Range != nil || e.Values != nil) {
 			d.errAt(e.Key, "the cluster column holds ids, not numbers: give no range or values")
 		}
-		if e.ByChance && u.Role != RolePredictor {
+		// The column's assignment is a fact of the data file: a
+		// sensitivity analysis may use a column the primary plan reads as
+		// a predictor otherwise (its subset keeping one arm), which the
+		// plan's own check has found to be a predictor.
+		if e.ByChance && u.Role != RolePredictor && !d.derived {
 			d.errAt(e.Key+".assigned_by_chance", "%s is the %s column (%s), not a predictor: only a predictor's values can have been assigned to the units by chance (a randomized treatment); remove assigned_by_chance here", quote(e.Column), u.Role, u.Key)
 		}
 		for _, c := range e.Missing {

@@ -132,6 +132,16 @@ func mistakeItems(dir string) []badInput {
 				}
 				return ""
 			}},
+		{id: "P69", name: "a sensitivity analysis keeping one arm of a predictor assigned by chance", args: []string{"check", "--no-data"}, code: 0,
+			plan: goodPlan + "dictionary:\n  a: {}\n  b: {values: [0, 1], assigned_by_chance: true}\n" +
+				"sensitivity:\n  - name: one_arm\n    why: w\n    change:\n      subset: [{column: b, equal_to: 1}]\n      predictors: [a]\n",
+			want: []string{"P69.yaml: plan is valid", "one_arm (line 18): changes subset, predictors"},
+			known: func(out, errs string, code int) string {
+				if strings.Contains(errs, `"b" is the subset column (subset[0]), not a predictor`) {
+					return "the analysis was refused for the primary plan's assigned_by_chance, which the plan cannot drop without losing the primary's reading of b"
+				}
+				return ""
+			}},
 		{id: "P66", name: "ordplan init into a folder that does not exist", args: []string{"init", filepath.Join(dir, "P66-nodir", "x.yaml"), "--data", filepath.Join(dir, "d.csv")}, code: 1,
 			want:  []string{"ordplan: init: cannot write P66-nodir/x.yaml: the folder P66-nodir does not exist: make it first, or give another path"},
 			check: noFolder("P66-nodir")},
