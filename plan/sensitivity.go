@@ -48,10 +48,14 @@ var SensitivityKeys = []string{"data.missing", "data.imputation", "data.cluster"
 // Keys of a sensitivity analysis's mapping.
 var sensitivityItemKeys = []string{"name", "why", "change"}
 
+// writeSetsKey is the key of the imputed sets written among the outputs,
+// which only the primary analysis writes.
+const writeSetsKey = "data.imputation.write_sets"
+
 // sensitivityLeftOut are the keys taken out of the primary plan before a
 // sensitivity analysis is read (see Sensitivity.Plan).
 var sensitivityLeftOut = []string{"sensitivity", "deviations", "inference", "assumptions",
-	"report.focus_predictor", "report.panels_by", "data.imputation.write_sets"}
+	"report.focus_predictor", "report.panels_by", writeSetsKey}
 
 // withSensitivity adds to spec the sensitivity key, whose changes are the
 // keys of SensitivityKeys as spec describes them.
@@ -68,6 +72,8 @@ func withSensitivity(spec *Key) *Key {
 		}
 		c := *cur
 		c.Name, c.Default, c.Required = path, "", false
+		// A sensitivity analysis writes no imputed sets (notWritten).
+		c.Keys = slices.DeleteFunc(slices.Clone(c.Keys), func(k *Key) bool { return path+"."+k.Name == writeSetsKey })
 		changes = append(changes, &c)
 	}
 	sens := k("sensitivity", KindList, "Sensitivity analyses fixed in advance: each is the primary plan with a few keys changed, read and checked as a whole plan and run with the same rules; the report shows the model each chose and the primary chosen model's estimates under each. They show how the results move under the changes tried, and nothing beyond them. Part of the frozen form.").item(
@@ -262,6 +268,11 @@ func (d *decoder) sensitivityChanges(m *mapping) []change {
 		}
 		if !slices.Contains(SensitivityKeys, k.Value) {
 			d.errorf(k, path, "%s", notChangeable(k.Value))
+			bad = true
+			continue
+		}
+		if m := deref(val); k.Value == "data.imputation" && m != nil && m.Kind == yaml.MappingNode && indexOf(m, "write_sets") >= 0 {
+			d.errorf(m.Content[indexOf(m, "write_sets")], childPath(path, "write_sets"), "a sensitivity analysis writes no imputed sets: only the primary analysis's are written among the outputs (%s); remove write_sets here", writeSetsKey)
 			bad = true
 			continue
 		}

@@ -142,6 +142,9 @@ func mistakeItems(dir string) []badInput {
 				}
 				return ""
 			}},
+		{id: "P70", name: "a sensitivity analysis asking to write its imputed sets", args: []string{"check", "--no-data"}, code: 1,
+			plan: goodPlan + "sensitivity:\n  - name: imputed\n    why: w\n    change:\n      data.missing: impute\n      data.imputation: {sets: 5, write_sets: true}\n",
+			want: []string{"P70.yaml:19:34: sensitivity[0].change.data.imputation.write_sets: a sensitivity analysis writes no imputed sets: only the primary analysis's are written among the outputs (data.imputation.write_sets); remove write_sets here"}},
 		{id: "P66", name: "ordplan init into a folder that does not exist", args: []string{"init", filepath.Join(dir, "P66-nodir", "x.yaml"), "--data", filepath.Join(dir, "d.csv")}, code: 1,
 			want:  []string{"ordplan: init: cannot write P66-nodir/x.yaml: the folder P66-nodir does not exist: make it first, or give another path"},
 			check: noFolder("P66-nodir")},
