@@ -145,6 +145,20 @@ func mistakeItems(dir string) []badInput {
 		{id: "P70", name: "a sensitivity analysis asking to write its imputed sets", args: []string{"check", "--no-data"}, code: 1,
 			plan: goodPlan + "sensitivity:\n  - name: imputed\n    why: w\n    change:\n      data.missing: impute\n      data.imputation: {sets: 5, write_sets: true}\n",
 			want: []string{"P70.yaml:19:34: sensitivity[0].change.data.imputation.write_sets: a sensitivity analysis writes no imputed sets: only the primary analysis's are written among the outputs (data.imputation.write_sets); remove write_sets here"}},
+		{id: "D49", name: "an empty cell under data.missing_values that leaves the empty text out", args: []string{"check"}, code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				if err := os.WriteFile(filepath.Join(dir, id+".csv"), []byte("y,a,b\n1,0.5,1\n2,,0\n3,0.1,1\n1,-99,0\n2,0.7,1\n3,0.9,0\n"), 0o644); err != nil {
+					t.Fatal(err)
+				}
+			},
+			plan: edit("  file: d.csv\n", "  file: D49.csv\n  missing_values: [\"-99\"]\n"),
+			want: []string{`D49.csv:3: column "a": value "" is not a number; an empty cell is not a missing value here: data.missing_values replaces the default markers ("", "NA", "NaN", ".") and leaves "" out: to read it as missing, set data.missing_values: ["-99", ""] (the markers in force and it), or list it for this column alone under dictionary.a.missing (ordplan fit reads an empty cell as missing always)`},
+			known: func(out, errs string, code int) string {
+				if strings.Contains(errs, "the column holds text: declare it categorical") {
+					return "an empty cell was said to be text, with the hint to declare the column categorical"
+				}
+				return ""
+			}},
 		{id: "P66", name: "ordplan init into a folder that does not exist", args: []string{"init", filepath.Join(dir, "P66-nodir", "x.yaml"), "--data", filepath.Join(dir, "d.csv")}, code: 1,
 			want:  []string{"ordplan: init: cannot write P66-nodir/x.yaml: the folder P66-nodir does not exist: make it first, or give another path"},
 			check: noFolder("P66-nodir")},

@@ -519,8 +519,12 @@ var missingWords = map[string]bool{
 
 // looksMissing reports whether a cell is a word that commonly marks a
 // missing value (missingWords, in any case, or a statistics package's
-// extended missing values .a to .z).
+// extended missing values .a to .z), or empty (read as text only when
+// data.missing_values, which replaces the default markers, leaves "" out).
 func looksMissing(cell string) bool {
+	if cell == "" {
+		return true
+	}
 	if len(cell) == 2 && cell[0] == '.' && (cell[1]|0x20) >= 'a' && (cell[1]|0x20) <= 'z' {
 		return true
 	}
@@ -543,10 +547,17 @@ func (r *reader) missingWordHint(col, cell string) string {
 		q = append(q, strconv.Quote(m))
 	}
 	fit := " (ordplan fit: --missing-codes " + col + "=" + cell + ")"
-	if strings.ContainsAny(col+cell, ",/=") {
+	switch {
+	case cell == "":
+		fit = " (ordplan fit reads an empty cell as missing always)"
+	case strings.ContainsAny(col+cell, ",/="):
 		fit = " (ordplan fit cannot give this code, which holds a comma, slash or equals sign: use a plan)"
 	}
-	return "; it looks like a missing-value marker, which is not among the markers in force: to read it as missing, set data.missing_values: [" + strings.Join(q, ", ") + "] (the markers in force and it), or list it for this column alone under dictionary." + col + ".missing" + fit
+	lead := "; it looks like a missing-value marker, which is not among the markers in force"
+	if cell == "" {
+		lead = "; an empty cell is not a missing value here: data.missing_values replaces the default markers (\"\", \"NA\", \"NaN\", \".\") and leaves \"\" out"
+	}
+	return lead + ": to read it as missing, set data.missing_values: [" + strings.Join(q, ", ") + "] (the markers in force and it), or list it for this column alone under dictionary." + col + ".missing" + fit
 }
 
 // intern returns one copy of a cluster id for all rows that have it, so
