@@ -127,7 +127,7 @@ func TestSubsetColumnMissing(t *testing.T) {
 			fmt.Sprintf("Of 300 rows, %d met the plan's subset conditions (age >= 18), %d failed them and %d could not be judged because they miss a column the conditions read (%d miss age). The %d rows whose membership of the subset is unknown were dropped as rows with missing values%s. %s",
 				met, outside, unknown, unknown, unknown, notImputed, wantUsed),
 			fmt.Sprintf("among them, rows that miss a column the subset's conditions read, so that whether they belong to the subset is unknown: %d (counted as missing values, not as outside the subset)", unknown),
-			fmt.Sprintf("outside the subset age >= 18: %d)", outside),
+			fmt.Sprintf("outside the subset age >= 18: %d; a row with several of these is counted once, under the first)", outside),
 		} {
 			if !strings.Contains(string(md), want) {
 				t.Errorf("%s: report.md lacks %q", mode, want)

@@ -82,7 +82,7 @@ func TestReadErrors(t *testing.T) {
 		{"one declared category observed", "y,a\nmid,1\nmid,2\n", labelled, 0, "y",
 			`t.csv: column "y": only one category ("mid") among the 2 kept rows; at least two are needed`},
 		{"all rows dropped", "y,a,b\n1,,3\nNA,2,3\n2,3,.\n", opts, 0, "",
-			`t.csv: all 3 data rows were dropped for missing values (y: 1, a: 1, b: 1)`},
+			`t.csv: all 3 data rows were dropped for missing values (y: 1, a: 1, b: 1; a row with several of these is counted once, under the first)`},
 		{"refuse missing", "y,a,b\n1,2,3\n2, NA ,3\n", Options{Outcome: "y", Predictors: []string{"a", "b"}, Refuse: true}, 3, "a",
 			`t.csv:3: column "a": missing value ("NA") where missing values are refused`},
 		{"refuse empty outcome", "y,a,b\n,2,3\n", Options{Outcome: "y", Predictors: []string{"a", "b"}, Refuse: true}, 2, "y",
@@ -434,5 +434,20 @@ func TestListedCodes(t *testing.T) {
 		if err == nil || err.Error() != want {
 			t.Fatalf("got %v\nwant %s", err, want)
 		}
+	}
+}
+
+// A row that misses several used columns is counted once, under the first,
+// and the summary says so, since the missing-value table counts it under
+// each (here b has two missing values but one row under it).
+func TestDropSummarySaysFirstColumnCounts(t *testing.T) {
+	in := "y,a,b\n1,1,2\n2,,\n1,3,\n2,4,5\n1,2,3\n"
+	d, err := Read(strings.NewReader(in), "m.csv", Options{Outcome: "y", Predictors: []string{"a", "b"}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := "2 of 5 rows dropped for missing values or zero weight (a: 1, b: 1; a row with several of these is counted once, under the first)"
+	if got := d.DropSummary(); got != want {
+		t.Errorf("DropSummary = %q, want %q", got, want)
 	}
 }

@@ -169,10 +169,17 @@ func (d *Dataset) UndecidedSummary() string {
 	return fmt.Sprintf("; among them, rows that miss a column the subset's conditions read, so that whether they belong to the subset is unknown: %d (counted as missing values, not as outside the subset)", d.RowsUndecided)
 }
 
+// dropList lists the dropped rows per reason; with several reasons it says
+// that a row is counted once, under the first that applies (so a column's
+// count may be less than its missing values in the missing-value table).
 func dropList(dc []DropCount) string {
 	parts := make([]string, len(dc))
 	for i, c := range dc {
 		parts[i] = fmt.Sprintf("%s: %d", c.Column, c.Rows)
 	}
-	return strings.Join(parts, ", ")
+	s := strings.Join(parts, ", ")
+	if len(dc) > 1 {
+		s += "; a row with several of these is counted once, under the first"
+	}
+	return s
 }
