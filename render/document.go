@@ -6,6 +6,7 @@ import (
 	"regexp"
 	"strings"
 	"unicode"
+	"unicode/utf8"
 )
 
 // doc is a report being written: Markdown text with chart groups between
@@ -113,7 +114,8 @@ func (d *doc) list(items []string) {
 
 // table writes a numbered Markdown table under its caption; cells are
 // escaped for pipes, and columns whose cells are all numbers, and every
-// column of p-values (pColumn), are right-aligned.
+// column of p-values (pColumn), are right-aligned; columns of one-character
+// marks (markColumn) are centred, and report.html keeps them narrow.
 func (d *doc) table(head []string, rows [][]string) {
 	d.nTable++
 	caption := d.caption
@@ -134,6 +136,8 @@ func (d *doc) table(head []string, rows [][]string) {
 		cells[i] = esc(h)
 		if numericColumn(rows, i) || pColumn(h) {
 			align.WriteString("---:|")
+		} else if markColumn(rows, i) {
+			align.WriteString(":---:|")
 		} else {
 			align.WriteString("---|")
 		}
@@ -253,6 +257,20 @@ func numericColumn(rows [][]string, i int) bool {
 		}
 	}
 	return seen
+}
+
+// markColumn reports whether column i holds marks, such as the x of a
+// missing value in a pattern: every cell empty or one character (a column
+// of the patterns table may have no mark at all). report.html does not
+// widen such cells to the 8em of text cells, so a table of many of them
+// (one per used column) fits the page.
+func markColumn(rows [][]string, i int) bool {
+	for _, r := range rows {
+		if i < len(r) && utf8.RuneCountInString(strings.TrimSpace(r[i])) > 1 {
+			return false
+		}
+	}
+	return len(rows) > 0
 }
 
 // pColumn reports whether a column headed h holds p-values ("p", "p,

@@ -288,3 +288,30 @@ func TestPValueColumnsRightAligned(t *testing.T) {
 		t.Errorf("only %d tables found in the golden report", tables)
 	}
 }
+
+// The missing-value patterns table has one column of x marks per used
+// column: such columns are centred, and report.html does not widen their
+// cells to the 8em of text cells (with eight used columns the table ran
+// off the page of the example report).
+func TestMarkColumnsCentredAndNarrow(t *testing.T) {
+	d := &doc{}
+	d.table([]string{"Rows", "Share", "safety", "age", "years_resident", "Note"}, [][]string{
+		{"41", "2.3%", "", "", "x", "a"},
+		{"23", "1.3%", "", "x", "", "two words"},
+		{"1734", "96.3%", "", "", "", ""},
+	})
+	if !strings.Contains(d.b.String(), "\n|---:|---:|:---:|:---:|:---:|---|\n") {
+		t.Errorf("the mark columns (one without a mark too) are not centred:\n%s", d.b.String())
+	}
+	got, err := d.html("t")
+	if err != nil {
+		t.Fatal(err)
+	}
+	h := string(got)
+	if !strings.Contains(h, `<td style="text-align:center">x</td>`) {
+		t.Errorf("report.html lacks a centred x cell")
+	}
+	if !strings.Contains(h, `td:not([style*="right"]):not([style*="center"]){white-space:normal;min-width:8em`) {
+		t.Errorf("the 8em minimum width of text cells also applies to centred mark cells")
+	}
+}
