@@ -154,12 +154,18 @@ func parseFlags(fs *flag.FlagSet, args []string) (bool, int) {
 	return false, 0
 }
 
-// pathFlags are the flags naming a file, a folder or a server, with what
-// they name: given empty (--out=, --previous "") they would name nothing
-// (or the current folder) without a word.
+// pathFlags are the flags naming a file, a folder, a server or columns,
+// with what they name: given empty (--out=, --previous "", --weights "")
+// they would name nothing (or the current folder) without a word, and a
+// fit would go on without the weights, offset or codes the command line
+// meant to give.
 var pathFlags = map[string]string{
 	"out": "a folder", "previous": "the output folder of an earlier run", "queue": "the server's URL",
 	"data": "a data file", "parts": "the data's part files", "cache": "a folder",
+	"outcome": "the outcome column", "predictors": "the predictor terms", "weights": "the column of weights",
+	"offset": "the offset column", "cluster": "the cluster column", "nonparallel": "predictors",
+	"constrained": "constraint groups", "categories": "the outcome's categories",
+	"missing-codes": "columns and their missing-value codes", "sheet": "a worksheet",
 }
 
 // flagUses are the values given to the flags of one flag set, over every
