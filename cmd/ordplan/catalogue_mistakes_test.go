@@ -52,6 +52,8 @@ func mistakeItems(dir string) []badInput {
 			check: noFolder("O13-out")},
 		{id: "O13", name: "ordplan fit given an empty --weights", args: fitArgs(filepath.Join(dir, "d.csv"), "--predictors", "a", "--weights", ""), code: 2,
 			want: []string{`ordplan fit: --weights is given an empty value (""), but it names the column of weights: give one, or leave the flag out`}},
+		{id: "C11", name: "ordplan fit --categories separated by slashes", args: fitArgs(filepath.Join(dir, "d.csv"), "--predictors", "a", "--categories", "1/2/3"), code: 1,
+			want: []string{`ordplan: d.csv: only one outcome category declared ("1/2/3"); at least two are needed: categories are separated by commas (ordplan fit --categories 1,2,3), not by "/"`}},
 		{id: "O14", name: "a flag given twice", args: []string{"power", "--n", "100", "--out", filepath.Join(dir, "O14-power"), "--n", "200"}, plan: edit() + assumed("{a: 0.2}", ""), code: 2,
 			want:  []string{`ordplan power: --n is given twice ("100", then "200"); give each flag once (several items go in one value, comma separated: --n 100,200)`},
 			check: noFolder("O14-power")},

@@ -241,7 +241,12 @@ func checkCategories(cats []string) error {
 		return nil
 	}
 	if len(cats) < 2 {
-		return fmt.Errorf("only one outcome category declared (%s); at least two are needed", quoteList(cats))
+		hint := ""
+		if sep := strings.IndexAny(cats[0], "/;|"); sep >= 0 {
+			// The separator of a level list in --predictors (levels=a/b/c).
+			hint = fmt.Sprintf(": categories are separated by commas (ordplan fit --categories %s), not by %q", strings.NewReplacer("/", ",", ";", ",", "|", ",").Replace(cats[0]), string(cats[0][sep]))
+		}
+		return fmt.Errorf("only one outcome category declared (%s); at least two are needed%s", quoteList(cats), hint)
 	}
 	seen := map[string]bool{}
 	for i, l := range cats {
