@@ -67,8 +67,9 @@ func (d *decoder) checkParts(p *Plan) ([]string, bool) {
 				ok = false
 			}
 		} else if first != nil {
-			if msg := data.OtherColumns(first, h); msg != "" {
-				d.errAt("data.parts", "the part %s has other columns than the first part %s (%s); every part must have the same columns", file, p.Data.PartFiles[0], msg)
+			if data.OtherColumns(first, h) != "" {
+				raw, _ := data.ReadFile(path) // only when the names differ
+				d.errAt("data.parts", "the part %s %s", file, data.PartColumns(first, p.Data.PartFiles[0], h, raw, p.Data.Dialect()))
 				ok = false
 			}
 		}

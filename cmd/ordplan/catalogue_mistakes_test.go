@@ -163,6 +163,12 @@ func mistakeItems(dir string) []badInput {
 				}
 				return ""
 			}},
+		{id: "X28", name: "data.parts: a part saved with semicolons among parts saved with commas", args: []string{"check"}, code: 1, setup: mixedParts,
+			plan: edit("file: d.csv", "parts: [X28-p1.csv, X28-p2.csv]"),
+			want: []string{`X28.yaml:3:10: data.parts: the part X28-p2.csv looks semicolon-separated with a decimal comma, but every part is read as the first part X28-p1.csv is, comma-separated with a decimal point (data.delimiter and data.decimal; ordplan fit: --delimiter and --decimal): save every part in one dialect`}},
+		{id: "X28", name: "ordplan fit --parts: a part saved with semicolons", args: []string{"fit", "--outcome", "y", "--predictors", "a", "--parts", "X28-p1.csv,X28-p2.csv"}, code: 1,
+			setup: func(t *testing.T, dir, id string) { mixedParts(t, dir, id); t.Chdir(dir) },
+			want: []string{`ordplan: X28-p2.csv:1: looks semicolon-separated with a decimal comma, but every part is read as the first part X28-p1.csv is, comma-separated with a decimal point`}},
 		{id: "P66", name: "ordplan init into a folder that does not exist", args: []string{"init", filepath.Join(dir, "P66-nodir", "x.yaml"), "--data", filepath.Join(dir, "d.csv")}, code: 1,
 			want:  []string{"ordplan: init: cannot write P66-nodir/x.yaml: the folder P66-nodir does not exist: make it first, or give another path"},
 			check: noFolder("P66-nodir")},
@@ -197,4 +203,21 @@ func danglingLock(t *testing.T, dir, id string) {
 	if err := os.Symlink("missing-lock.json", p); err != nil {
 		t.Fatal(err)
 	}
+}
+
+// mixedParts writes two parts of d.csv's rows: ID-p1.csv as d.csv writes
+// them, ID-p2.csv with semicolons and decimal commas.
+func mixedParts(t *testing.T, dir, id string) {
+	t.Helper()
+	b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+	semi := []string{strings.ReplaceAll(lines[0], ",", ";")}
+	for _, l := range lines[61:] {
+		semi = append(semi, strings.ReplaceAll(strings.ReplaceAll(l, ",", ";"), ".", ","))
+	}
+	os.WriteFile(filepath.Join(dir, id+"-p1.csv"), []byte(strings.Join(lines[:61], "\n")+"\n"), 0o644)
+	os.WriteFile(filepath.Join(dir, id+"-p2.csv"), []byte(strings.Join(semi, "\n")+"\n"), 0o644)
 }

@@ -232,8 +232,8 @@ func (p *partRecords) open(k int) error {
 	p.spans = append(p.spans, PartSpan{File: path, Offset: offset, Last: 1})
 	if k == 0 {
 		p.header = names
-	} else if msg := OtherColumns(p.header, names); msg != "" {
-		return &partError{&Error{File: path, Line: 1, Msg: fmt.Sprintf("has other columns than the first part %s (%s); every part must have the same columns", p.paths[0], msg)}}
+	} else if msg := PartColumns(p.header, p.paths[0], names, raw, p.dialect); msg != "" {
+		return &partError{&Error{File: path, Line: 1, Msg: msg}}
 	}
 	p.perm = make([]int, len(p.header))
 	for i, n := range p.header {
@@ -407,4 +407,22 @@ func (s *PartsSummary) Check(name string, opt Options, categories []string, coun
 	d := s.d
 	d.Categories, d.Counts = categories, counts
 	return r.twoCategories(&d)
+}
+
+// PartColumns is the message for a part whose header names differ from
+// the first part's (first, of the part firstFile), "" when they do not:
+// a part whose first lines (raw) look written in another dialect than d,
+// the one every part is read in, is said so (a part saved with
+// semicolons among parts saved with commas); else the columns that
+// differ.
+func PartColumns(first []string, firstFile string, names []string, raw []byte, d Dialect) string {
+	msg := OtherColumns(first, names)
+	if msg == "" {
+		return ""
+	}
+	if want, ok := guessDialect(raw, d); ok && (want.delim() != d.delim() || want.DecimalComma != d.DecimalComma) {
+		return fmt.Sprintf("looks %s-separated with a decimal %s, but every part is read as the first part %s is, %s-separated with a decimal %s (data.delimiter and data.decimal; ordplan fit: --delimiter and --decimal): save every part in one dialect",
+			want.DelimiterWord(), want.DecimalWord(), firstFile, d.DelimiterWord(), d.DecimalWord())
+	}
+	return fmt.Sprintf("has other columns than the first part %s (%s); every part must have the same columns", firstFile, msg)
 }
