@@ -2094,7 +2094,7 @@ func catalogue(dir string) (items []badInput) {
 			setup: func(t *testing.T, dir, id string) {
 				earlierRun(t, dir, id, func(rec string) string { return "" })
 			},
-			want: []string{"change: The data file is now d.csv (was R9-d.csv) (sha256 ", "change: The folder of --previous holds no readable run.json (the earlier run's record), so which columns of the data changed cannot be said.\n"}},
+			want: []string{"since the previous run: The data file is now d.csv (was R9-d.csv) (sha256 ", "since the previous run: The folder of --previous holds no readable run.json (the earlier run's record), so which columns of the data changed cannot be said.\n"}},
 		{id: "R10", name: "--previous naming the folder of a run whose run.json an older ordplan wrote", args: []string{"run", "--previous", filepath.Join(dir, "R10-first")}, plan: goodPlan, code: 0,
 			setup: func(t *testing.T, dir, id string) {
 				earlierRun(t, dir, id, func(rec string) string {
@@ -2107,7 +2107,7 @@ func catalogue(dir string) (items []badInput) {
 					return string(b)
 				})
 			},
-			want: []string{"change: The earlier run did not record per-column fingerprints of its data (its run.json was written by an older ordplan), so which columns of the data changed cannot be said.\n"}},
+			want: []string{"since the previous run: The earlier run did not record per-column fingerprints of its data (its run.json was written by an older ordplan), so which columns of the data changed cannot be said.\n"}},
 		{id: "R13", name: "--previous naming a run whose record holds no fingerprint of columns this run reads", args: []string{"run", "--previous", filepath.Join(dir, "R13-first")}, plan: goodPlan, code: 0,
 			setup: func(t *testing.T, dir, id string) {
 				earlierRun(t, dir, id, func(rec string) string {
@@ -2120,7 +2120,7 @@ func catalogue(dir string) (items []badInput) {
 					return string(b)
 				})
 			},
-			want: []string{"change: y: the earlier run's record has no fingerprint of y (outcome), a (predictor), b (predictor), which this run reads (that run did not read them in this role, or its record was edited since), so whether they changed cannot be said; no column both runs read changed in the rows used.\n"},
+			want: []string{"since the previous run: y: the earlier run's record has no fingerprint of y (outcome), a (predictor), b (predictor), which this run reads (that run did not read them in this role, or its record was edited since), so whether they changed cannot be said; no column both runs read changed in the rows used.\n"},
 			known: func(out, errs string, code int) string {
 				if strings.Contains(out, "no column this outcome uses changed") {
 					return "with the data changed, no column was said to have changed, as no column this run reads was in the earlier record to compare"
@@ -2184,7 +2184,7 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{"report: O9-out/report.html"},
 			check: func(t *testing.T, dir, out, errs string) {
 				errs = strings.ReplaceAll(errs, dir+string(filepath.Separator), "")
-				for _, w := range []string{"ordplan run: output folder O9-out held an earlier run whose outputs differ from this run's (the plan changed and the data file d.csv changed); kept them in O9-out/earlier/", " (--previous O9-out/earlier/"} {
+				for _, w := range []string{"ordplan run: output folder O9-out held an earlier run whose outputs differ from this run's: the plan changed and the data file d.csv changed; kept them in O9-out/earlier/", " (--previous O9-out/earlier/"} {
 					if !strings.Contains(errs, w) {
 						t.Errorf("want %q on stderr:\n%s", w, errs)
 					}

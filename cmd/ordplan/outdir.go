@@ -366,7 +366,7 @@ func writeOutputs(lock *outputLock, dir string, files map[string][]byte, record 
 			return err
 		}
 		if kept != "" && lock != nil && lock.w != nil {
-			fmt.Fprintf(lock.w.stderr, "ordplan %s: output folder %s held an earlier run whose outputs differ from this run's (%s); kept them in %s (--previous %s lists what changed)\n",
+			fmt.Fprintf(lock.w.stderr, "ordplan %s: output folder %s held an earlier run whose outputs differ from this run's: %s; kept them in %s (--previous %s lists what changed)\n",
 				lock.w.command, dir, recordChange(kept, all[recordFile]), kept, kept)
 		}
 		// Files the previous run listed and this one does not write (the
@@ -700,7 +700,7 @@ func recordChange(kept string, record []byte) string {
 	if changed := runner.RecordChanges(was, &now); len(changed) > 0 {
 		return words.AndList(changed)
 	}
-	return "nothing its run.json records differs: the plan, every input file, the program's build and the command line are the same"
+	return "nothing its run.json records differs (the plan, every input file, the program's build and the command line are the same)"
 }
 
 // folderRecords reads the run records an output folder holds: its

@@ -130,7 +130,7 @@ func TestNewRowsHashCompared(t *testing.T) {
 	}
 	os.WriteFile(filepath.Join(dir, "new.csv"), []byte("a,b\n0.5,0\n-1,0\n"), 0o644)
 	out, e, code = runCLI("run", p, "--out", second, "--previous", first, "--quiet")
-	if code != 0 || !strings.Contains(out, "change: The new-rows file changed (sha256 ") {
+	if code != 0 || !strings.Contains(out, "since the previous run: The new-rows file changed (sha256 ") {
 		t.Errorf("changed new rows: exit %d %s %s", code, out, e)
 	}
 }

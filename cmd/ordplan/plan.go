@@ -189,7 +189,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 		code = exitNoChoice
 	}
 	for _, c := range changes {
-		fmt.Fprintf(stdout, "change: %s\n", c)
+		fmt.Fprintf(stdout, "since the previous run: %s\n", c)
 	}
 	fmt.Fprintf(stdout, "report: %s\n", filepath.Join(dir, "report.html"))
 	return code

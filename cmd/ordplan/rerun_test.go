@@ -107,8 +107,8 @@ func TestRerunNamesChangedColumns(t *testing.T) {
 				f[1] = "34"
 			}
 		}), []string{
-			"change: The data file d.csv changed (sha256 ",
-			fmt.Sprintf("change: y: column age (predictor) changed: sum %d -> %d, mean %.6g -> %.6g.\n", sum, sum-9, float64(sum)/240, float64(sum-9)/240),
+			"since the previous run: The data file d.csv changed (sha256 ",
+			fmt.Sprintf("since the previous run: y: column age (predictor) changed: sum %d -> %d, mean %.6g -> %.6g.\n", sum, sum-9, float64(sum)/240, float64(sum-9)/240),
 		}, []string{"column y ", "column grp "}},
 		{"outcome exchanged", rerunRows(func(i int, f []string) {
 			switch i {
@@ -118,10 +118,10 @@ func TestRerunNamesChangedColumns(t *testing.T) {
 				f[0] = fmt.Sprint(1 + (x*7+x%5)%3)
 			}
 		}), []string{
-			"change: y: column y (outcome) changed: the same values in other rows (values exchanged between rows; its counts per level and of missing values are the same).\n",
+			"since the previous run: y: column y (outcome) changed: the same values in other rows (values exchanged between rows; its counts per level and of missing values are the same).\n",
 		}, []string{"column age ", "column grp ", "counts per category"}},
 		{"rows reordered", append(append([]string(nil), base[120:]...), base[:120]...), []string{
-			"change: y: the 240 rows used are the same, in another order: no value of a column changed (a reordering of the rows changes no fit beyond rounding in the last digits, so no column is named).\n",
+			"since the previous run: y: the 240 rows used are the same, in another order: no value of a column changed (a reordering of the rows changes no fit beyond rounding in the last digits, so no column is named).\n",
 		}, []string{"column age", "column y ", "column grp"}},
 	}
 	for _, c := range cases {
@@ -138,7 +138,7 @@ func TestRerunNamesChangedColumns(t *testing.T) {
 				t.Errorf("%s: no %q in:\n%s", c.name, w, stdout)
 			}
 			// The report lists the same lines (no Markdown in these).
-			if item := "- " + strings.TrimSuffix(strings.TrimPrefix(w, "change: "), "\n"); !strings.Contains(section, item) {
+			if item := "- " + strings.TrimSuffix(strings.TrimPrefix(w, "since the previous run: "), "\n"); !strings.Contains(section, item) {
 				t.Errorf("%s: report: no %q in:\n%s", c.name, item, section)
 			}
 		}
@@ -161,7 +161,7 @@ func TestRerunNamesChangedColumns(t *testing.T) {
 	os.WriteFile(filepath.Join(old, "run.json"), b, 0o644)
 	writeRows(t, data, base)
 	stdout, e, code := runCLI("run", p, "--out", filepath.Join(dir, "after-old"), "--previous", old, "--quiet")
-	if code != 0 || !strings.Contains(stdout, "change: The earlier run did not record per-column fingerprints of its data (its run.json was written by an older ordplan), so which columns of the data changed cannot be said.\n") {
+	if code != 0 || !strings.Contains(stdout, "since the previous run: The earlier run did not record per-column fingerprints of its data (its run.json was written by an older ordplan), so which columns of the data changed cannot be said.\n") {
 		t.Errorf("older run.json: exit %d: %s %s", code, stdout, e)
 	}
 }
@@ -194,7 +194,7 @@ func TestRerunNamesChangedPart(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, e)
 	}
-	for _, w := range []string{"change: The part p2.csv changed (sha256 of the parts' sha256s ", "change: y: column age (predictor) changed: sum "} {
+	for _, w := range []string{"since the previous run: The part p2.csv changed (sha256 of the parts' sha256s ", "since the previous run: y: column age (predictor) changed: sum "} {
 		if !strings.Contains(stdout, w) {
 			t.Errorf("no %q in:\n%s", w, stdout)
 		}

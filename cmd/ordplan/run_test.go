@@ -75,7 +75,7 @@ func TestRunExamplePlan(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
-	if !strings.Contains(stdout, "change: The data file data/quietstreets.csv changed") || !strings.Contains(stdout, "rows used") {
+	if !strings.Contains(stdout, "since the previous run: The data file data/quietstreets.csv changed") || !strings.Contains(stdout, "rows used") {
 		t.Errorf("changes not reported: %s", stdout)
 	}
 }
