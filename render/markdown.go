@@ -24,6 +24,7 @@ func build(r *runner.Result, dec *runner.Decisions, changes []string) *doc {
 	d.h(1, mdText(reportTitle(r)))
 	writeSimulated(d, r)
 	writeRegistration(d, r)
+	writeSimulatedHow(d, r)
 	d.p("This report was written by ordplan %s from the plan %s (sha256 `%s`) and %s. The plan fixed the candidate models and the decision rules before the models were fitted; the same plan and data give this report byte for byte.",
 		r.Version, mdCode(dec.Plan.File), p.Hash, dataSentence(r))
 	if r.Started != "" {

@@ -13,7 +13,9 @@ import (
 // from simulated data.
 const SimulatedMark = "SIMULATED DATA"
 
-// writeSimulated says, first, that the data were simulated.
+// writeSimulated says, first, that the data were simulated; how they were
+// drawn follows the plan's registration (writeSimulatedHow), so that
+// UNREGISTERED CHANGES stays in the first lines, as in the power report.
 func writeSimulated(d *doc, r *runner.Result) {
 	s := r.Simulated
 	if s == nil {
@@ -25,6 +27,16 @@ func writeSimulated(d *doc, r *runner.Result) {
 	}
 	d.p("**%s.** No real observation was used: `ordplan %s` drew %d rows (seed %d, %s) from the plan's `assumptions` and data dictionary, with a %s model generating each outcome, and ran the whole plan on them. This report shows what the registered analysis will print; its numbers say nothing about the real data.",
 		SimulatedMark, s.Command, s.N, s.Seed, mdCode(s.File), model)
+}
+
+// writeSimulatedHow says what the subset kept of the simulated rows and
+// how their missing values, weights, truncated columns and clusters were
+// drawn.
+func writeSimulatedHow(d *doc, r *runner.Result) {
+	s := r.Simulated
+	if s == nil {
+		return
+	}
 	if s.Kept != nil {
 		d.p("The plan's subset (%s) kept %d of the %d simulated rows. The stated category proportions describe the rows the subset keeps, the population the plan analyses: the cutpoints were solved, and the design's constants set, on simulated rows that meet the subset.", strings.Join(s.Subset, "; "), *s.Kept, s.N)
 	}

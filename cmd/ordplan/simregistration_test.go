@@ -97,6 +97,10 @@ func TestSimulationRecordsRegistration(t *testing.T) {
 		// A rehearsal sees no data: the run's words (results "not fixed
 		// before the data were seen", "this run") were untrue of it.
 		t.Errorf("the rehearsal's report speaks of a run on data:\n%.2500s", b)
+	} else if u, n := strings.Index(string(b), "UNREGISTERED CHANGES"), strings.Index(string(b), "Numeric columns with a range in the dictionary"); n < 0 || u > n {
+		// As in the power report, the registration comes before the
+		// paragraphs on how the columns were drawn.
+		t.Errorf("the rehearsal's report says UNREGISTERED CHANGES at byte %d, after how the columns were drawn (byte %d)", u, n)
 	}
 	if b, _ := os.ReadFile(filepath.Join(dir, "p2", "power.md")); !strings.Contains(string(b), "**UNREGISTERED CHANGES: 1 of the 1 change(s)") || !strings.Contains(string(b), "| `rules[2].reject_if_test_rejects.alpha` | `0.01` | `0.05` | **no stated reason** |") {
 		t.Errorf("the power study does not say so:\n%.2500s", b)
