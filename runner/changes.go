@@ -31,7 +31,12 @@ func Changes(prevDir string, cur *Decisions) ([]string, error) {
 // a rehearsal's (its decisions.json records simulated data) is refused:
 // its invented data cannot be the earlier run of the real data.
 func ReadPrevious(prevDir string) (*Decisions, error) {
-	b, err := os.ReadFile(filepath.Join(prevDir, "decisions.json"))
+	path := filepath.Join(prevDir, "decisions.json")
+	if fi, err := os.Stat(path); err == nil && !fi.Mode().IsRegular() {
+		// A device or a named pipe would be read without end.
+		return nil, fmt.Errorf("--previous: %s is not a regular file (a named pipe, a device or a folder); --previous names the output folder of an earlier ordplan run (its --out, which holds its decisions.json)", path)
+	}
+	b, err := os.ReadFile(path)
 	if err != nil {
 		return nil, fmt.Errorf("--previous: %w; --previous names the output folder of an earlier ordplan run (its --out, which holds its decisions.json)", err)
 	}

@@ -75,6 +75,17 @@ func mistakeItems(dir string) []badInput {
 			},
 			want:  []string{`ordplan: --previous: R11-prev/decisions.json is not the decisions record of an ordplan run (it does not say "program": "ordplan"); --previous names the output folder of an earlier ordplan run (its --out, which holds its decisions.json)`},
 			check: noFolder("R11-out")},
+		{id: "R14", name: "--previous naming a folder whose decisions.json is a device", args: []string{"run", "--previous", filepath.Join(dir, "R14-prev")}, plan: goodPlan, code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				// /dev/null, not /dev/zero: a regression must not read without end.
+				os.MkdirAll(filepath.Join(dir, id+"-prev"), 0o755)
+				os.Remove(filepath.Join(dir, id+"-prev", "decisions.json"))
+				if err := os.Symlink("/dev/null", filepath.Join(dir, id+"-prev", "decisions.json")); err != nil {
+					t.Fatal(err)
+				}
+			},
+			want:  []string{`ordplan: --previous: R14-prev/decisions.json is not a regular file (a named pipe, a device or a folder); --previous names the output folder of an earlier ordplan run (its --out, which holds its decisions.json)`},
+			check: noFolder("R14-out")},
 		{id: "R12", name: "a lock file that is a link to a missing file, under check", args: []string{"check"}, plan: goodPlan, code: 1, setup: danglingLock,
 			want: []string{"ordplan: R12.lock.json is a symbolic link to missing-lock.json, which does not exist: the plan's registration cannot be read (was the lock moved or deleted?); restore the file it points to, or remove the link if the plan was never frozen"}},
 		{id: "R12", name: "a lock file that is a link to a missing file, under run", args: []string{"run"}, plan: goodPlan, code: 1, setup: danglingLock,
