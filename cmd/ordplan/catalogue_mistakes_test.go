@@ -86,6 +86,16 @@ func mistakeItems(dir string) []badInput {
 			},
 			want:  []string{`ordplan: --previous: R14-prev/decisions.json is not a regular file (a named pipe, a device or a folder); --previous names the output folder of an earlier ordplan run (its --out, which holds its decisions.json)`},
 			check: noFolder("R14-out")},
+		{id: "R15", name: "a lock file that is a link to a device", args: []string{"check"}, plan: goodPlan, code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				// /dev/null, not /dev/zero: a regression must not read without end.
+				p := filepath.Join(dir, id+".lock.json")
+				os.Remove(p)
+				if err := os.Symlink("/dev/null", p); err != nil {
+					t.Fatal(err)
+				}
+			},
+			want: []string{"ordplan: R15.lock.json is not a regular file (a named pipe, a device or a folder): a lock file is the file ordplan freeze writes beside the plan; put the registered lock back, or remove this one if the plan was never frozen"}},
 		{id: "R12", name: "a lock file that is a link to a missing file, under check", args: []string{"check"}, plan: goodPlan, code: 1, setup: danglingLock,
 			want: []string{"ordplan: R12.lock.json is a symbolic link to missing-lock.json, which does not exist: the plan's registration cannot be read (was the lock moved or deleted?); restore the file it points to, or remove the link if the plan was never frozen"}},
 		{id: "R12", name: "a lock file that is a link to a missing file, under run", args: []string{"run"}, plan: goodPlan, code: 1, setup: danglingLock,

@@ -161,6 +161,10 @@ func DanglingLink(path string) error {
 // Read reads and verifies a lock file: its layout, its own checksum, and
 // the SHA-256 of the canonical form it holds.
 func Read(path string) (*File, error) {
+	if fi, err := os.Stat(path); err == nil && !fi.Mode().IsRegular() {
+		// A device or a named pipe would be read without end.
+		return nil, fmt.Errorf("%s is not a regular file (a named pipe, a device or a folder): a lock file is the file ordplan freeze writes beside the plan; put the registered lock back, or remove this one if the plan was never frozen", path)
+	}
 	b, err := os.ReadFile(path)
 	if err != nil {
 		return nil, err
