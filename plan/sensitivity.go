@@ -317,8 +317,17 @@ func (d *decoder) sensitivityError(e *Error, s Sensitivity, changes []change, pr
 			return
 		}
 	}
+	hint := ""
+	for _, sk := range SensitivityKeys {
+		if e.Key == sk || strings.HasPrefix(e.Key, sk+".") || strings.HasPrefix(e.Key, sk+"[") {
+			// A key the analysis may change: the primary plan's value
+			// can stay, and the analysis give its own.
+			hint = fmt.Sprintf(" (for this analysis alone: give %s in its change, null to remove it)", sk)
+			break
+		}
+	}
 	d.errs = append(d.errs, &Error{File: e.File, Line: e.Line, Col: e.Col, Key: e.Key,
-		Msg: fmt.Sprintf("with %s applied: %s", s.Title(), e.Msg)})
+		Msg: fmt.Sprintf("with %s applied: %s%s", s.Title(), e.Msg, hint)})
 }
 
 // derivePlan reads the primary plan's text root with the changes written
