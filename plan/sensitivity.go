@@ -323,6 +323,9 @@ func (d *decoder) sensitivityError(e *Error, s Sensitivity, changes []change, pr
 			// A key the analysis may change: the primary plan's value
 			// can stay, and the analysis give its own.
 			hint = fmt.Sprintf(" (for this analysis alone: give %s in its change, null to remove it)", sk)
+			if sk == "predictors" { // required
+				hint = " (for this analysis alone: give predictors in its change)"
+			}
 			break
 		}
 	}
