@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"html"
 	"strings"
+	"unicode"
 
 	"github.com/yuin/goldmark"
 	"github.com/yuin/goldmark/ast"
@@ -25,6 +26,7 @@ nav.toc ul{margin:0.2em 0}tr:nth-child(even) td{background:#fafafa}code{backgrou
 .chart-group{display:flex;flex-wrap:wrap;gap:1em;margin:1em 0 1.5em}.chart-figure{flex:1 1 480px;margin:0;border:1px solid #e3e3e3;padding:0.5em;min-width:0}
 .chart-figure.wide{flex-basis:100%}.chart{width:100%}figcaption{font-size:0.85em;color:#444;margin-top:0.3em}
 .chart-tools{font-size:0.8em;color:#555;margin-top:0.3em}.chart-tools button{font-size:1em;padding:0.1em 0.6em;margin-left:0.2em;border:1px solid #bbb;background:#f7f7f7;border-radius:3px;cursor:pointer}@media print{.chart-tools{display:none}}
+.why{display:inline-block;max-width:16em;white-space:normal;text-align:left}
 #js-errors{white-space:pre-wrap;color:#a00;border:2px solid #a00;padding:0.5em;margin:1em 0}#js-errors:empty{display:none}`
 
 // errorScript runs first: any script error on the page, or message to
@@ -61,7 +63,7 @@ func (d *doc) html(title string) ([]byte, error) {
 			return err
 		}
 		// Wide tables scroll inside their box instead of squeezing cells.
-		h := strings.ReplaceAll(buf.String(), "<table>", `<div class="table-wrap"><table>`)
+		h := strings.ReplaceAll(wrapNumberColumnProse(buf.String()), "<table>", `<div class="table-wrap"><table>`)
 		out.WriteString(strings.ReplaceAll(h, "</table>", "</table></div>"))
 		return nil
 	}
@@ -104,6 +106,71 @@ func (d *doc) html(title string) ([]byte, error) {
 	}
 	out.WriteString("</body>\n</html>\n")
 	return out.Bytes(), nil
+}
+
+// rightCell opens a cell of a right-aligned column (numbers, p-values).
+const rightCell = `<td style="text-align:right">`
+
+// wrapNumberColumnProse puts the words in a cell of a right-aligned
+// column, such as a p column's "not computed: defined for the cumulative
+// logit model only", into a box of at most 16em (class why) in which they
+// wrap: as one line, which the column's cells keep, they made the column as
+// wide as the sentence and set its numbers far from the rest of the row.
+// Cells of numbers, with or without a bracket ("0.350 (0.107)", "<0.0001"),
+// are left alone: a cell is prose when its text has a run of four letters
+// and is longer than 24 characters.
+func wrapNumberColumnProse(h string) string {
+	if !strings.Contains(h, rightCell) {
+		return h
+	}
+	var out strings.Builder
+	for {
+		i := strings.Index(h, rightCell)
+		if i < 0 {
+			out.WriteString(h)
+			return out.String()
+		}
+		i += len(rightCell)
+		j := strings.Index(h[i:], "</td>")
+		if j < 0 {
+			out.WriteString(h)
+			return out.String()
+		}
+		out.WriteString(h[:i])
+		if cell := h[i : i+j]; cellIsProse(cell) {
+			out.WriteString(`<span class="why">` + cell + `</span>`)
+		} else {
+			out.WriteString(cell)
+		}
+		h = h[i+j:]
+	}
+}
+
+// cellIsProse reports whether a rendered cell's text (tags left out) is
+// words rather than a number: a run of four letters, over 24 characters.
+func cellIsProse(cell string) bool {
+	var text strings.Builder
+	inTag := false
+	for _, r := range cell { // tags first: a "<" of the text is "&lt;" here
+		switch {
+		case r == '<':
+			inTag = true
+		case r == '>' && inTag:
+			inTag = false
+		case !inTag:
+			text.WriteRune(r)
+		}
+	}
+	n, run, words := 0, 0, false
+	for _, r := range html.UnescapeString(text.String()) {
+		n++
+		if !unicode.IsLetter(r) {
+			run = 0
+		} else if run++; run >= 4 {
+			words = true
+		}
+	}
+	return words && n > 24
 }
 
 // headingIDs gives the headings of report.html the anchors the table of

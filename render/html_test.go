@@ -39,3 +39,34 @@ func TestNameBreaks(t *testing.T) {
 		}
 	}
 }
+
+// A p column's "not computed: ..." is set in a box in which it wraps, so
+// that the column stays as wide as its numbers (it was as wide as the
+// sentence, the p-values far from their rows); numbers, with a "<", are
+// left as they are.
+func TestNumberColumnProseWraps(t *testing.T) {
+	var d doc
+	d.table([]string{"Test", "Chi-square", "df", "p"}, [][]string{
+		{"Brant (all predictors)", "", "", "not computed: defined for the cumulative logit model only"},
+		{"Likelihood ratio (all predictors)", "54.037", "30", "<0.0001"},
+		{"Wald: pilot", "6.536", "3", "0.0883"},
+	})
+	got, err := d.html("t")
+	if err != nil {
+		t.Fatal(err)
+	}
+	h := string(got)
+	for _, want := range []string{
+		`<td style="text-align:right"><span class="why">not computed: defined for the cumulative logit model only</span></td>`,
+		`<td style="text-align:right">&lt;0.0001</td>`,
+		`<td style="text-align:right">0.0883</td>`,
+		`.why{display:inline-block;max-width:16em;white-space:normal;text-align:left}`,
+	} {
+		if !strings.Contains(h, want) {
+			t.Errorf("report.html lacks %q", want)
+		}
+	}
+	if strings.Count(h, `class="why"`) != 1 {
+		t.Errorf("%d cells boxed, want 1", strings.Count(h, `class="why"`))
+	}
+}
