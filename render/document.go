@@ -235,8 +235,11 @@ func mdCode(s string) string {
 // numberCell matches a cell that reads as a number: a sign, digits, a
 // decimal point, an exponent, a percent sign, "<" before a small p-value,
 // a value in brackets after it, or a range of two numbers; a count "k of
-// n" and a mean's ", n rows" (the predictors by outcome category).
-var numberCell = regexp.MustCompile(`^(<|−|-)?[0-9][0-9,]*(\.[0-9]+)?(e[-+]?[0-9]+)?%?( of [0-9][0-9,.]*)?( \((-|−)?[0-9.]+(e[-+]?[0-9]+)?%?\))?(, [0-9][0-9,.]* rows)?(–-?[0-9.]+)?$`)
+// n" and a mean's ", n rows" (the predictors by outcome category); a rate
+// of none or all replicates with its bound in brackets ("0.000 (0 of 20;
+// below 0.139 with 95% confidence)", simulate.Rate.Text), so that a power
+// table's column of rates stays right-aligned when one of them is 0.
+var numberCell = regexp.MustCompile(`^(<|−|-)?[0-9][0-9,]*(\.[0-9]+)?(e[-+]?[0-9]+)?%?( of [0-9][0-9,.]*)?( \((-|−)?[0-9.]+(e[-+]?[0-9]+)?%?\)| \([0-9]+ of [0-9]+; (below|above) [0-9.]+ with 95% confidence\))?(, [0-9][0-9,.]* rows)?(–-?[0-9.]+)?$`)
 
 // numericColumn reports whether every non-empty cell of column i is a
 // number, "inf" included (placeholders such as "—" and "n/a" allowed) and

@@ -60,7 +60,7 @@ func TestNumberColumnProseWraps(t *testing.T) {
 		`<td style="text-align:right"><span class="why">not computed: defined for the cumulative logit model only</span></td>`,
 		`<td style="text-align:right">&lt;0.0001</td>`,
 		`<td style="text-align:right">0.0883</td>`,
-		`.why{display:inline-block;max-width:16em;white-space:normal;text-align:left}`,
+		`.why{display:inline-block;max-width:16em;white-space:normal}`,
 	} {
 		if !strings.Contains(h, want) {
 			t.Errorf("report.html lacks %q", want)
@@ -68,5 +68,26 @@ func TestNumberColumnProseWraps(t *testing.T) {
 	}
 	if strings.Count(h, `class="why"`) != 1 {
 		t.Errorf("%d cells boxed, want 1", strings.Count(h, `class="why"`))
+	}
+}
+
+// A power table's column of rates stays right-aligned when a rate is 0 or
+// 1 and its cell gives the count and the exact bound (simulate.Rate.Text);
+// report.html sets that cell's words in the wrapping box.
+func TestRateBoundCellsRightAligned(t *testing.T) {
+	var d doc
+	d.table([]string{"Replicates with", "n = 150", "n = 300"}, [][]string{
+		{"a candidate fit without a finite maximum (separation)", "0.650 (0.107)", "0.000 (0 of 20; below 0.139 with 95% confidence)"},
+		{"a plan that could not be run", "1.000 (20 of 20; above 0.861 with 95% confidence)", "0.250 (0.097)"},
+	})
+	if !strings.Contains(d.b.String(), "\n|---|---:|---:|\n") {
+		t.Errorf("the rate columns are not right-aligned:\n%s", d.b.String())
+	}
+	got, err := d.html("t")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if want := `<td style="text-align:right"><span class="why">0.000 (0 of 20; below 0.139 with 95% confidence)</span></td>`; !strings.Contains(string(got), want) {
+		t.Errorf("report.html lacks %q", want)
 	}
 }
