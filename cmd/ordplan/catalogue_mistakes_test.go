@@ -54,6 +54,8 @@ func mistakeItems(dir string) []badInput {
 			want: []string{`ordplan fit: --weights is given an empty value (""), but it names the column of weights: give one, or leave the flag out`}},
 		{id: "C11", name: "ordplan fit --categories separated by slashes", args: fitArgs(filepath.Join(dir, "d.csv"), "--predictors", "a", "--categories", "1/2/3"), code: 1,
 			want: []string{`ordplan: d.csv: only one outcome category declared ("1/2/3"); at least two are needed: categories are separated by commas (ordplan fit --categories 1,2,3), not by "/"`}},
+		{id: "T37", name: "ordplan fit --predictors with a typeset minus sign", args: fitArgs(filepath.Join(dir, "d.csv"), "--predictors", "a|centre=−1"), code: 1,
+			want: []string{`ordplan: --predictors: predictor 1 ("a|centre=−1"): centre=−1: want mean or a finite number; it holds the character U+2212 (MINUS SIGN) where a number has the ASCII hyphen-minus "-": write -1`}},
 		{id: "O14", name: "a flag given twice", args: []string{"power", "--n", "100", "--out", filepath.Join(dir, "O14-power"), "--n", "200"}, plan: edit() + assumed("{a: 0.2}", ""), code: 2,
 			want:  []string{`ordplan power: --n is given twice ("100", then "200"); give each flag once (several items go in one value, comma separated: --n 100,200)`},
 			check: noFolder("O14-power")},

@@ -10,6 +10,7 @@ import (
 	"strings"
 
 	"ordplan/runner"
+	"ordplan/runner/data"
 	"ordplan/runner/design"
 )
 
@@ -169,7 +170,7 @@ func parseCompactTerm(item string, earlier map[string]bool, terms []design.TermS
 			} else {
 				x, err := finiteNumber(v)
 				if err != nil {
-					return t, nil, fmt.Errorf("centre=%s: want mean or a finite number", v)
+					return t, nil, fmt.Errorf("centre=%s: want mean or a finite number%s", v, data.PlanNumberHint(v))
 				}
 				t.Centre, t.CentreAt = "value", x
 			}
@@ -277,7 +278,7 @@ func parseCompactTerm(item string, earlier map[string]bool, terms []design.TermS
 func finiteNumber(s string) (float64, error) {
 	x, err := strconv.ParseFloat(s, 64)
 	if err != nil {
-		return 0, fmt.Errorf("%q is not a number", s)
+		return 0, fmt.Errorf("%q is not a number%s", s, data.PlanNumberHint(s))
 	}
 	if math.IsNaN(x) || math.IsInf(x, 0) {
 		return 0, fmt.Errorf("%q is not a finite number", s)
