@@ -461,7 +461,8 @@ func minusLookalikes(s string) (string, []string) {
 }
 
 // PlanNumberHint is what follows a plan's message for a text where a
-// number is wanted (a subset's threshold, a range, a knot), when the
+// number is wanted (a subset's threshold, a range, a knot; also a number
+// of ordplan fit's --predictors), when the
 // text would be a number but for a character that looks like the minus
 // sign (−1.5) or a decimal comma (0,5, as a decimal-comma data file
 // writes it): which, and the number to write, since a plan writes its
