@@ -192,6 +192,26 @@ func mistakeItems(dir string) []badInput {
 		{id: "X28", name: "ordplan fit --parts: a part saved with semicolons", args: []string{"fit", "--outcome", "y", "--predictors", "a", "--parts", "X28-p1.csv,X28-p2.csv"}, code: 1,
 			setup: func(t *testing.T, dir, id string) { mixedParts(t, dir, id); t.Chdir(dir) },
 			want: []string{`ordplan: X28-p2.csv:1: looks semicolon-separated with a decimal comma, but every part is read as the first part X28-p1.csv is, comma-separated with a decimal point`}},
+		{id: "D47", name: "the header line repeated inside the new rows to predict", args: []string{"check"}, code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+				if err != nil {
+					t.Fatal(err)
+				}
+				lines := strings.SplitAfter(string(b), "\n")
+				joined := strings.Join(lines[:3], "") + lines[0] + strings.Join(lines[3:6], "")
+				if err := os.WriteFile(filepath.Join(dir, "hdrnew.csv"), []byte(joined), 0o644); err != nil {
+					t.Fatal(err)
+				}
+			},
+			plan: goodPlan + "inference: {predict: hdrnew.csv}\n",
+			want: []string{"D47.yaml: inference.predict: hdrnew.csv:4: this line repeats the header (y,a,b,c,d,big,tiny) of line 1: a data file has one header line; remove the repeated one"},
+			known: func(out, errs string, code int) string {
+				if strings.Contains(errs, "the column holds text") {
+					return "a header repeated in the new rows was read as a row whose cells were text"
+				}
+				return ""
+			}},
 		{id: "P66", name: "ordplan init into a folder that does not exist", args: []string{"init", filepath.Join(dir, "P66-nodir", "x.yaml"), "--data", filepath.Join(dir, "d.csv")}, code: 1,
 			want:  []string{"ordplan: init: cannot write P66-nodir/x.yaml: the folder P66-nodir does not exist: make it first, or give another path"},
 			check: noFolder("P66-nodir")},

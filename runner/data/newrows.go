@@ -119,6 +119,9 @@ func LoadNewRows(path string, predictors []string, levels map[string][]string, o
 		if err != nil {
 			return nil, r.csvErr(err, rec)
 		}
+		if r.repeatsHeader(rec) {
+			return nil, r.headerAgain()
+		}
 		rs.RowsRead++
 		line, _ := cr.FieldPos(0)
 		vals := make([]float64, len(cols))
