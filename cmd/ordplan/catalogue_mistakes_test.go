@@ -212,6 +212,34 @@ func mistakeItems(dir string) []badInput {
 				}
 				return ""
 			}},
+		{id: "D47", name: "the header line repeated inside a stacked file of imputed sets", args: []string{"check"}, code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+				if err != nil {
+					t.Fatal(err)
+				}
+				lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+				out := []string{"imp," + lines[0]}
+				for k := 1; k <= 2; k++ {
+					if k == 2 {
+						out = append(out, "imp,"+lines[0]) // two files joined with their headers
+					}
+					for _, l := range lines[1:] {
+						out = append(out, fmt.Sprintf("%d,%s", k, l))
+					}
+				}
+				if err := os.WriteFile(filepath.Join(dir, "hdrimp.csv"), []byte(strings.Join(out, "\n")+"\n"), 0o644); err != nil {
+					t.Fatal(err)
+				}
+			},
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: hdrimp.csv, column: imp}\n"),
+			want: []string{"D47.yaml: data.imputed.file: hdrimp.csv:122: this line repeats the header (imp,y,a,b,c,d,big,tiny) of line 1: a data file has one header line; remove the repeated one"},
+			known: func(out, errs string, code int) string {
+				if strings.Contains(errs, `imputation number "imp" is not a whole number`) {
+					return "a header repeated in a stacked imputed file was read as an imputation number"
+				}
+				return ""
+			}},
 		{id: "P66", name: "ordplan init into a folder that does not exist", args: []string{"init", filepath.Join(dir, "P66-nodir", "x.yaml"), "--data", filepath.Join(dir, "d.csv")}, code: 1,
 			want:  []string{"ordplan: init: cannot write P66-nodir/x.yaml: the folder P66-nodir does not exist: make it first, or give another path"},
 			check: noFolder("P66-nodir")},

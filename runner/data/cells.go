@@ -37,6 +37,9 @@ func ColumnCells(path string, d Dialect, column string, each func(line int, cell
 		if err != nil {
 			return r.csvErr(err, rec)
 		}
+		if r.repeatsHeader(rec) {
+			return r.headerAgain()
+		}
 		line, _ := r.cr.FieldPos(col)
 		if err := each(line, strings.TrimSpace(rec[col])); err != nil {
 			return err
