@@ -240,6 +240,20 @@ func mistakeItems(dir string) []badInput {
 				}
 				return ""
 			}},
+		{id: "D47", name: "the header line repeated inside a part", args: []string{"fit", "--outcome", "y", "--predictors", "a", "--parts", "X28-p1.csv,D47-part.csv"}, code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				mixedParts(t, dir, "X28")
+				b, err := os.ReadFile(filepath.Join(dir, "X28-p1.csv"))
+				if err != nil {
+					t.Fatal(err)
+				}
+				lines := strings.SplitAfter(string(b), "\n")
+				if err := os.WriteFile(filepath.Join(dir, id+"-part.csv"), []byte(strings.Join(lines[:4], "")+lines[0]+strings.Join(lines[4:], "")), 0o644); err != nil {
+					t.Fatal(err)
+				}
+				t.Chdir(dir)
+			},
+			want: []string{"ordplan: D47-part.csv:5: this line repeats the header (y,a,b,c,d,big,tiny) of line 1: a data file has one header line"}},
 		{id: "P66", name: "ordplan init into a folder that does not exist", args: []string{"init", filepath.Join(dir, "P66-nodir", "x.yaml"), "--data", filepath.Join(dir, "d.csv")}, code: 1,
 			want:  []string{"ordplan: init: cannot write P66-nodir/x.yaml: the folder P66-nodir does not exist: make it first, or give another path"},
 			check: noFolder("P66-nodir")},

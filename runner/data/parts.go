@@ -276,6 +276,7 @@ func (p *partRecords) Read() ([]string, error) {
 		if err := p.open(0); err != nil {
 			return nil, err
 		}
+		p.line, _ = p.cur.cr.FieldPos(0) // the header's line, which messages name
 		return slices.Clone(p.header), nil
 	}
 	for {
