@@ -12,6 +12,11 @@ import (
 
 var update = flag.Bool("update", false, "rewrite testdata/golden/report.md from the current output")
 
+// updateHow is the command that rewrites the golden report: -update goes
+// after the package (or after -args), where go test passes it to the test
+// binary; before the package, go test misreads the package as its value.
+const updateHow = "go test ./render/ -run TestGoldenReport -args -update"
+
 // TestGoldenReport compares report.md with the reviewed copy, and checks
 // that two runs (with different numbers of workers) give the same bytes.
 func TestGoldenReport(t *testing.T) {
@@ -24,10 +29,10 @@ func TestGoldenReport(t *testing.T) {
 	}
 	want, err := os.ReadFile(path)
 	if err != nil {
-		t.Fatalf("%v (run with -update to create it)", err)
+		t.Fatalf("%v (make it with %s)", err, updateHow)
 	}
 	if got := first["report.md"]; !bytes.Equal(got, want) {
-		t.Errorf("report.md differs from %s (run with -update after checking the change):\n%s", path, firstDiff(string(want), string(got)))
+		t.Errorf("report.md differs from %s (after checking the change, rewrite it with %s):\n%s", path, updateHow, firstDiff(string(want), string(got)))
 	}
 	second := renderPlan(t, goldenPlan, 4)
 	for _, name := range []string{"report.md", "report.html", "decisions.json"} {
