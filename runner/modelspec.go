@@ -73,7 +73,9 @@ func (s Spec) Model() (fit.Model, error) {
 		if !ok {
 			return 0, fmt.Errorf("%s predictor %q is not among the predictors (%s)", what, p, strings.Join(s.Predictors, ", "))
 		}
-		if prev, seen := where[p]; seen {
+		if prev, seen := where[p]; seen && prev == what {
+			return 0, fmt.Errorf("predictor %q is listed twice as %s; list it once", p, what)
+		} else if seen {
 			return 0, fmt.Errorf("predictor %q is both %s and %s", p, prev, what)
 		}
 		where[p] = what

@@ -320,7 +320,7 @@ func parseGroups(s string) ([]runner.Group, error) {
 			g.Name = strings.TrimSpace(part[:i])
 			part = part[i+1:]
 			if g.Name == "" {
-				return nil, fmt.Errorf("constraint group %q has an empty name", part)
+				return nil, fmt.Errorf("group %d of %d in %q has an empty name before the colon: write NAME:%s, or leave the colon out for a group without a name", k+1, len(parts), s, strings.TrimSpace(part))
 			}
 		}
 		if names[g.Name] {
