@@ -20,7 +20,7 @@ import (
 
 const css = `body{font-family:system-ui,-apple-system,"Segoe UI",sans-serif;max-width:1100px;margin:2em auto;padding:0 1em;color:#1b1b1b;line-height:1.45;overflow-wrap:break-word}
 table{border-collapse:collapse;margin:0.6em 0 1.2em;font-size:0.9em}th,td{border:1px solid #ccc;padding:0.25em 0.6em;text-align:left;vertical-align:top}
-th{background:#f2f2f2;white-space:nowrap}td{white-space:nowrap}td[style*="right"],th[style*="right"]{font-variant-numeric:tabular-nums}td:not([style*="right"]):not([style*="center"]){white-space:normal;min-width:8em;max-width:38em;overflow-wrap:break-word}
+th{background:#f2f2f2}td{white-space:nowrap}td[style*="right"],th[style*="right"]{font-variant-numeric:tabular-nums}td:not([style*="right"]):not([style*="center"]){white-space:normal;min-width:8em;max-width:38em;overflow-wrap:break-word}
 .table-wrap{overflow-x:auto;max-width:100%;margin:0.6em 0 1.2em}.table-wrap table{margin:0}
 nav.toc ul{margin:0.2em 0}tr:nth-child(even) td{background:#fafafa}code{background:#f4f4f4;padding:0 0.2em}h2{border-bottom:2px solid #ddd;padding-bottom:0.2em;margin-top:2em}
 .chart-group{display:flex;flex-wrap:wrap;gap:1em;margin:1em 0 1.5em}.chart-figure{flex:1 1 480px;margin:0;border:1px solid #e3e3e3;padding:0.5em;min-width:0}

@@ -91,3 +91,12 @@ func TestRateBoundCellsRightAligned(t *testing.T) {
 		t.Errorf("report.html lacks %q", want)
 	}
 }
+
+// Header cells wrap at their spaces ("Std. error", "95% high", "p, Holm"):
+// kept on one line, the headers of the hypotheses table (twelve columns)
+// made it wider than the page, its last column cut off behind the scroll.
+func TestHeadersMayWrap(t *testing.T) {
+	if strings.Contains(css, "th{background:#f2f2f2;white-space:nowrap}") || !strings.Contains(css, "th{background:#f2f2f2}") {
+		t.Errorf("header cells are kept on one line: %s", css)
+	}
+}
