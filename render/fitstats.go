@@ -295,7 +295,7 @@ func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 	l := charts.NewLine()
 	l.SetGlobalOptions(append(fr.opts(),
 		charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: "group", NameLocation: "middle", NameGap: 28}),
-		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: "share of the group", Max: 1}))...)
+		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: "share of the group", Min: 0, Max: shareAxisMax(t)}))...)
 	groups := make([]string, t.Groups)
 	for g := range groups {
 		groups[g] = fmt.Sprint(g + 1)
@@ -319,6 +319,27 @@ func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 	}
 	caption := "For each category, the expected share of each group (line) and the observed share (points). Points far from their line, in a pattern, show where the model misfits; groups are ordered by predicted score."
 	return newChart(fr, caption, l).with(fig)
+}
+
+// shareAxisMax is the top of the calibration chart's axis: the largest
+// observed or expected share of a group rounded up to a tenth, at most 1.
+// With five categories the shares stay below 0.5, and an axis to 1 (as it
+// was) pressed the lines and points into its lower half; the static figure
+// takes its range from the data too.
+func shareAxisMax(t *fit.ScoreGroups) float64 {
+	top := 0.0
+	for g := 0; g < t.Groups; g++ {
+		if t.Weight[g] <= 0 {
+			continue
+		}
+		for j := range t.Categories {
+			top = math.Max(top, math.Max(t.Observed[g][j], t.Expected[g][j])/t.Weight[g])
+		}
+	}
+	if m := math.Ceil(top*10-1e-9) / 10; m > 0 && m < 1 {
+		return m
+	}
+	return 1
 }
 
 // boundaryCell names where a ratio holds in a table's Boundary column:
