@@ -47,7 +47,7 @@ func (d *decoder) decodeData(n *yaml.Node, data *Data) {
 	}
 	m.word("missing", "missing-data mode", missingWords, &data.Missing)
 	if v := m.get("missing_values"); v != nil {
-		data.MissingValues, _ = d.readList(v, "data.missing_values", d.token)
+		data.MissingValues, _ = d.readList(v, "data.missing_values", d.missingCode)
 	}
 	m.word("delimiter", "delimiter", dataDelimiterWords, &data.Delimiter)
 	m.word("decimal", "decimal mark", dataDecimalWords, &data.Decimal)

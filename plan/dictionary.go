@@ -67,7 +67,7 @@ func (d *decoder) decodeDictionary(n *yaml.Node) []Entry {
 			}
 		}
 		if v := m.get("missing"); v != nil {
-			e.Missing, _ = d.readList(v, m.at("missing"), d.token)
+			e.Missing, _ = d.readList(v, m.at("missing"), d.missingCode)
 		}
 		out = append(out, e)
 	})

@@ -43,6 +43,19 @@ func (d *decoder) token(n *yaml.Node, path string) (string, bool) {
 	return s, d.printable(n, path, s, false)
 }
 
+// missingCode reads a missing-value code (token), refusing one that is
+// a number but for a typeset minus sign (data.MissingCodeHint).
+func (d *decoder) missingCode(n *yaml.Node, path string) (string, bool) {
+	s, ok := d.token(n, path)
+	if ok {
+		if h := data.MissingCodeHint(s); h != "" {
+			d.errorf(deref(n), path, "missing-value code %s%s", quote(s), h)
+			return s, false
+		}
+	}
+	return s, ok
+}
+
 // text reads free text such as a title: may be empty, may hold tabs and
 // line breaks but no other control characters.
 func (d *decoder) text(n *yaml.Node, path string) (string, bool) {

@@ -399,6 +399,9 @@ func parseMissingCodes(s string) (map[string][]string, error) {
 			if c = strings.TrimSpace(c); c == "" {
 				return nil, fmt.Errorf("item %d (%q): an empty code; give codes separated by /, such as %s=-9/-99 (an empty cell is missing anyway)", i+1, it, col)
 			}
+			if h := data.MissingCodeHint(c); h != "" {
+				return nil, fmt.Errorf("item %d (%q): code %q%s", i+1, it, c, h)
+			}
 			list = append(list, c)
 		}
 		out[col] = list

@@ -460,6 +460,22 @@ func minusLookalikes(s string) (string, []string) {
 	return fixed, found
 }
 
+// MissingCodeHint says, of a missing-value code that would be a number
+// but for a character that looks like the minus sign (−99 copied from a
+// typeset codebook), that it marks no cell the data write with the ASCII
+// minus, and what to write; "" for any other code. Such a code would
+// leave every -99 read as a value.
+func MissingCodeHint(code string) string {
+	fixed, found := minusLookalikes(strings.TrimSpace(code))
+	if len(found) == 0 {
+		return ""
+	}
+	if _, msg := parseNumber(strings.Replace(fixed, ",", ".", 1)); msg != "" {
+		return ""
+	}
+	return fmt.Sprintf(": it holds the character %s where a number has the ASCII hyphen-minus \"-\", so it would mark no cell written %s as missing, and those cells would be read as the value %s: write %s", strings.Join(found, " and "), fixed, fixed, fixed)
+}
+
 // PlanNumberHint is what follows a plan's message for a text where a
 // number is wanted (a subset's threshold, a range, a knot; also a number
 // of ordplan fit's --predictors), when the
