@@ -264,6 +264,13 @@ func mistakeItems(dir string) []badInput {
 				t.Chdir(dir)
 			},
 			want: []string{"ordplan: D47-part.csv:5: this line repeats the header (y,a,b,c,d,big,tiny) of line 1: a data file has one header line"}},
+		{id: "D50", name: "a numeric missing-value code written with a point for a decimal-comma file", args: fitArgs(filepath.Join(dir, "D50.csv"), "--delimiter", "semicolon", "--decimal", "comma", "--predictors", "a", "--missing-codes", "a=-99.0"), code: 0,
+			setup: func(t *testing.T, dir, id string) {
+				if err := os.WriteFile(filepath.Join(dir, id+".csv"), []byte("y;a;b\n1;0,5;1\n2;-99,00;0\n3;0,1;1\n1;0,3;0\n2;0,7;1\n3;0,9;0\n1;0,2;1\n2;0,4;0\n3;-99,00;1\n1;0,6;0\n2;0,8;1\n3;0,35;0\n"), 0o644); err != nil {
+					t.Fatal(err)
+				}
+			},
+			want: []string{"D50.csv: 12 rows read, 10 used; 2 of 12 rows dropped for missing values or zero weight (a: 2)"}},
 		{id: "P66", name: "ordplan init into a folder that does not exist", args: []string{"init", filepath.Join(dir, "P66-nodir", "x.yaml"), "--data", filepath.Join(dir, "d.csv")}, code: 1,
 			want:  []string{"ordplan: init: cannot write P66-nodir/x.yaml: the folder P66-nodir does not exist: make it first, or give another path"},
 			check: noFolder("P66-nodir")},

@@ -89,6 +89,10 @@ func (r *reader) newFastPlan(t *rowTally) *fastPlan {
 		for _, tok := range r.opt.ColumnMissing[c.name] {
 			f.check = f.check || p.valid(&f, strings.TrimSpace(tok))
 		}
+		// A code that is a number written otherwise than the file writes
+		// numbers (-99.0 in a plan for a decimal-comma file: codeNumber)
+		// is not a valid cell, yet marks the number.
+		f.check = f.check || len(r.numCodes[c.name]) > 0
 		p.fields[c.index] = f
 	}
 	p.plain = true

@@ -150,7 +150,7 @@ func (c Condition) MarkerValues(markers, own []string, d Dialect) (values, marks
 			if _, b := boolWord(t); b || t == "" {
 				continue
 			}
-			if v, msg := d.number(t); msg == "" && v == c.Number {
+			if v, ok := codeNumber(t, d); ok && v == c.Number {
 				return []string{strconv.FormatFloat(c.Number, 'g', -1, 64)}, []string{m}
 			}
 		}
@@ -328,7 +328,7 @@ func (r *reader) readNumbers(cols ...string) {
 			if _, b := boolWord(tok); b {
 				return // a marker TRUE marks the text, not every 1
 			}
-			if v, msg := r.opt.Dialect.number(tok); msg == "" && !slices.Contains(codes, v) {
+			if v, ok := codeNumber(tok, r.opt.Dialect); ok && !slices.Contains(codes, v) {
 				codes = append(codes, v)
 			}
 		}
@@ -345,6 +345,22 @@ func (r *reader) readNumbers(cols ...string) {
 			r.numCodes[col] = codes
 		}
 	}
+}
+
+// codeNumber is the number a missing-value code is, if it is one: as the
+// data file writes numbers (dialect d), or as a plan does, with a
+// decimal point (-99.0 in a plan for a decimal-comma file, as a subset's
+// threshold is written).
+func codeNumber(tok string, d Dialect) (float64, bool) {
+	if v, msg := d.number(tok); msg == "" {
+		return v, true
+	}
+	if d.DecimalComma && !strings.ContainsRune(tok, ',') {
+		if v, msg := parseNumber(tok); msg == "" {
+			return v, true
+		}
+	}
+	return 0, false
 }
 
 // comparedAsNumbers reports whether a subset condition compares column
