@@ -49,8 +49,8 @@ func (d *decoder) decodeData(n *yaml.Node, data *Data) {
 	if v := m.get("missing_values"); v != nil {
 		data.MissingValues, _ = d.readList(v, "data.missing_values", d.missingCode)
 	}
-	m.word("delimiter", "delimiter", dataDelimiterWords, &data.Delimiter)
-	m.word("decimal", "decimal mark", dataDecimalWords, &data.Decimal)
+	d.charWord(m, "delimiter", "delimiter", dataDelimiterWords, dataDelimiters, &data.Delimiter)
+	d.charWord(m, "decimal", "decimal mark", dataDecimalWords, dataDecimalMarks, &data.Decimal)
 	m.text("sheet", &data.Sheet)
 	if v := m.get("header_row"); v != nil {
 		if h, ok := d.integer(v, "data.header_row"); ok {
@@ -208,7 +208,27 @@ func twinHow(t data.Twin, files []string) string {
 var (
 	dataDelimiterWords = data.DelimiterWords
 	dataDecimalWords   = data.DecimalWords
+	dataDelimiters     = data.Delimiters
+	dataDecimalMarks   = map[string]rune{"point": '.', "comma": ','}
 )
+
+// charWord reads the word of key (one of words) into dst, as mapping.word;
+// a value that is the character a word stands for (";" for semicolon, a
+// tab for tab) is refused with the word to write, and dst takes that word,
+// so that the data file is not also said to be read in another dialect.
+func (d *decoder) charWord(m *mapping, key, what string, words []string, chars map[string]rune, dst *string) {
+	v := m.get(key)
+	if n := deref(v); n != nil && n.Kind == yaml.ScalarNode {
+		for _, w := range words {
+			if r := chars[w]; n.Value == string(r) {
+				d.errorf(n, m.at(key), "%s: write the word %s for %q", unknownWord(what, n.Value, words), w, n.Value)
+				*dst = w
+				return
+			}
+		}
+	}
+	m.word(key, what, words, dst)
+}
 
 // decodeImputed reads data.imputed: file and column (one stacked file), or
 // files (one per imputed set, at least two).

@@ -182,6 +182,10 @@ func mistakeItems(dir string) []badInput {
 		{id: "P70", name: "a sensitivity analysis asking to write its imputed sets", args: []string{"check", "--no-data"}, code: 1,
 			plan: goodPlan + "sensitivity:\n  - name: imputed\n    why: w\n    change:\n      data.missing: impute\n      data.imputation: {sets: 5, write_sets: true}\n",
 			want: []string{"P70.yaml:19:34: sensitivity[0].change.data.imputation.write_sets: a sensitivity analysis writes no imputed sets: only the primary analysis's are written among the outputs (data.imputation.write_sets); remove write_sets here"}},
+		{id: "P71", name: "data.delimiter or data.decimal given as the character", args: []string{"check", "--no-data"}, code: 1, lines: true,
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  delimiter: \";\"\n  decimal: \",\"\n"),
+			want: []string{`P71.yaml:4:14: data.delimiter: unknown delimiter ";" (want comma, semicolon or tab): write the word semicolon for ";"`,
+				`P71.yaml:5:12: data.decimal: unknown decimal mark "," (want point or comma): write the word comma for ","`}},
 		{id: "D49", name: "an empty cell under data.missing_values that leaves the empty text out", args: []string{"check"}, code: 1,
 			setup: func(t *testing.T, dir, id string) {
 				if err := os.WriteFile(filepath.Join(dir, id+".csv"), []byte("y,a,b\n1,0.5,1\n2,,0\n3,0.1,1\n1,-99,0\n2,0.7,1\n3,0.9,0\n"), 0o644); err != nil {
