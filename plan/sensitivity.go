@@ -501,11 +501,13 @@ func (s Sensitivity) Title() string {
 }
 
 // OnData is the analysis's plan reading the data p reads (a rehearsal's
-// simulated file in place of the plan's), for a run of p.
+// simulated file in place of the plan's, read as ordplan wrote it:
+// Data.Written), for a run of p.
 func (s Sensitivity) OnData(p *Plan) *Plan {
 	sp := *s.Plan
 	sp.Data.File, sp.Data.Path = p.Data.File, p.Data.Path
 	sp.Data.Parts, sp.Data.PartFiles, sp.Data.PartPaths = p.Data.Parts, p.Data.PartFiles, p.Data.PartPaths
+	sp.Data.Written = p.Data.Written
 	return &sp
 }
 

@@ -151,6 +151,9 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 		}
 		fmt.Fprintf(stdout, "%s: %s\n", o.Outcome, chosen)
 	}
+	// As run prints them; a rehearsal's exit code says only whether it
+	// ran, so an analysis that could not be run changes it not.
+	sensitivityLines(dec, stdout)
 	fmt.Fprintf(stdout, "report: %s\n", filepath.Join(dir, "report.html"))
 	return exitOK
 }

@@ -26,6 +26,10 @@ rules:
   - choose: {by: bic}
 inference:
   predict: new.csv
+sensitivity:
+  - name: robust
+    why: The model may be wrong.
+    change: {covariance: sandwich}
 assumptions:
   n: 200
   predictors:
@@ -40,7 +44,8 @@ assumptions:
 // with a decimal comma reads the data it simulated (written comma-separated
 // with a decimal point) as such, and the new rows as the plan says; both
 // once failed ("the file looks comma-separated ... but is read as
-// semicolon-separated").
+// semicolon-separated"). The rehearsal prints its sensitivity analysis's
+// choice as run does.
 func TestRehearseAndPowerPlanDialect(t *testing.T) {
 	dir := t.TempDir()
 	for name, body := range map[string]string{
@@ -54,8 +59,13 @@ func TestRehearseAndPowerPlanDialect(t *testing.T) {
 	}
 	planPath := filepath.Join(dir, "plan.yaml")
 	out := filepath.Join(dir, "reh")
-	if _, errs, code := runCLI("rehearse", planPath, "--quiet", "--out", out); code != 0 {
+	stdout, errs, code := runCLI("rehearse", planPath, "--quiet", "--out", out)
+	if code != 0 {
 		t.Fatalf("rehearse: exit %d: %s", code, errs)
+	}
+	// The sensitivity analysis's choice is printed as run prints it.
+	if !strings.Contains(stdout, "\nsensitivity analysis robust: y: chosen: cumulative/parallel/logit, as in the primary analysis\n") {
+		t.Errorf("rehearse's summary lacks the sensitivity analysis:\n%s\n%s", stdout, errs)
 	}
 	sim, err := os.ReadFile(filepath.Join(out, simulatedFile))
 	if err != nil || !strings.HasPrefix(string(sim), "y,x,g\n") {
