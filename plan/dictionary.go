@@ -179,7 +179,10 @@ func (d *decoder) checkDictionary(p *Plan) {
 		}
 	}
 	for _, u := range used {
-		if p.EntryOf(u.Column) == nil && u.Role != RoleOutcome && u.Role != RoleSubset {
+		// A sensitivity analysis's plan leaves this to the plan's own
+		// check, which counts the columns its changes bring (UsedColumns):
+		// the column would be named twice.
+		if p.EntryOf(u.Column) == nil && u.Role != RoleOutcome && u.Role != RoleSubset && !d.derived {
 			d.errAt("dictionary", "column %s is used (%s) but not described; the dictionary describes every column the plan uses", quote(u.Column), u.Key)
 		}
 	}

@@ -199,3 +199,25 @@ func TestSensitivityCanonical(t *testing.T) {
 		t.Errorf("a plan without sensitivity analyses has them in its canonical form")
 	}
 }
+
+// A column only an analysis uses that the dictionary does not describe is
+// named once, at the analysis's change, not again by the analysis's own
+// plan.
+func TestSensitivityUndescribedColumnOnce(t *testing.T) {
+	src := sensBase + `dictionary:
+  a: {label: A}
+  b: {label: B}
+  c: {label: C}
+  site: {label: Site}
+sensitivity:
+  - name: clustered
+    why: Sites share staff.
+    change:
+      data.cluster: ward
+      covariance: clustered
+`
+	_, err := Parse([]byte(src), "p.yaml")
+	if err == nil || strings.Count(err.Error(), `"ward"`) != 1 || !strings.Contains(err.Error(), `column "ward" is used (sensitivity[0].change.data.cluster) but not described`) {
+		t.Fatalf("want the column named once, at the change, got:\n%v", err)
+	}
+}
