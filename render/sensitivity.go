@@ -9,6 +9,8 @@ import (
 	"ordplan/plan/lock"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
+	"ordplan/runner/fit"
+	"ordplan/runner/impute/chained"
 )
 
 // sensitivityLimit is what the report says of every set of sensitivity
@@ -171,6 +173,16 @@ func writeSensitivityOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult,
 		rows = append(rows, []string{sr.Sensitivity.Name, fmt.Sprint(sor.AsRead().N), chosen, same})
 	}
 	d.captioned("The model the rules chose under each analysis, "+or.Outcome.Column).table([]string{"Analysis", "Rows used", "Model chosen", "The primary analysis's choice"}, rows)
+	var how []string
+	for _, sr := range r.Sensitivity {
+		if h := sensitivityRows(sr, sr.Outcome(or.Outcome.Column)); h != "" {
+			how = append(how, h)
+		}
+	}
+	if len(how) > 0 {
+		d.p("The rows each analysis used, and how it handled missing values and clusters:")
+		d.list(how)
+	}
 	for _, sr := range r.Sensitivity {
 		if n := errorsOnlyNote(r, sr, or.Outcome.Column); n != "" {
 			d.p("%s", n)
@@ -223,6 +235,52 @@ func writeSensitivityOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult,
 	if len(missing) > 0 {
 		d.p("Not fitted under: %s.", strings.Join(missing, "; "))
 	}
+}
+
+// sensitivityRows says, for one outcome under one sensitivity analysis,
+// what a reviewer asks of it beside its choice: the rows read, used and
+// dropped by reason, how its missing values were imputed (the method,
+// sets, iterations, seed and each column's model and predictors, as the
+// primary analysis's section on imputation says them) and the clusters of
+// its cluster-robust errors; "" when it was not run.
+func sensitivityRows(sr *runner.SensitivityResult, sor *runner.OutcomeResult) string {
+	if sr.Result == nil || sor == nil {
+		return ""
+	}
+	ds := sor.AsRead()
+	s := fmt.Sprintf("**%s**: %d rows read, %d used; %s.", mdText(sr.Sensitivity.Name), ds.RowsRead, ds.N, mdText(ds.DropSummary()))
+	p := sr.Result.Plan
+	if im := sor.Imputed; im != nil {
+		if ch := im.Chained; ch != nil {
+			var models []string
+			for _, m := range ch.Models {
+				w := modelWords[m.Method]
+				if m.Method == chained.MeanMatching {
+					w = fmt.Sprintf(w, ch.Donors)
+				}
+				models = append(models, fmt.Sprintf("%s (%d values) by %s given %s", mdCode(m.Column), m.Missing, w, strings.Join(m.Predictors, ", ")))
+			}
+			s += fmt.Sprintf(" Of these, %d (%s) had a missing value in the outcome or a predictor and were kept: their values were imputed by chained equations, %d sets, each after %d iterations, seed %d; %s. The fits of the %d sets were pooled by Rubin's rules, intervals on t with Barnard-Rubin degrees of freedom. This assumes that values are missing at random given the columns of the imputation models.",
+				ch.RowsIncomplete, sharePct(ch.RowsIncomplete, im.Rows), ch.Sets, ch.Iterations, ch.Seed, strings.Join(models, "; "), im.M)
+		} else {
+			s += fmt.Sprintf(" Analysed on the %d imputed sets of the data, pooled by Rubin's rules.", im.M)
+		}
+	} else if p.Data.Missing == plan.MissingImpute {
+		s += " No value of the columns it uses is missing: nothing was imputed, and the data were analysed as they are."
+	}
+	if col := p.Data.Cluster; col != "" && sr.Result.Analysis != nil && sr.Result.Analysis.Errors.Covariance == fit.Clustered {
+		g := runner.ClusterCount(sor.Data)
+		kind := "the cluster-robust sandwich"
+		if sr.Result.Analysis.Errors.Jackknife() {
+			kind = "the delete-one-cluster jackknife"
+		}
+		ref := fmt.Sprintf("intervals on t with G-1 = %d degrees of freedom", g-1)
+		if sor.Imputed != nil {
+			ref = fmt.Sprintf("pooled with G-1 = %d complete-data degrees of freedom", g-1)
+		}
+		s += fmt.Sprintf(" Standard errors by %s over the %d clusters of %s in the rows used, %s.", kind, g, mdCode(col), ref)
+	}
+	return s
 }
 
 // sensitivitySummary is the summary's line on the sensitivity analyses

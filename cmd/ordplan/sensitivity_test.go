@@ -370,3 +370,56 @@ func TestSensitivityErrorsOnly(t *testing.T) {
 		})
 	}
 }
+
+// Beside its choice, each sensitivity analysis says the rows it read and
+// used, the rows dropped by reason (the subset's), how it imputed (sets,
+// iterations, seed, each column's model with its count of imputed values
+// and its predictors) and the clusters of its clustered errors: what a
+// reviewer asks of it. The counts are checked against sens.csv as written
+// (its NA cells and its 12 districts) and decisions.json's rows used.
+func TestSensitivityRowsAndMethods(t *testing.T) {
+	dir := t.TempDir()
+	sensitivityData(t, dir)
+	section := sensitivitySection + `  - name: clustered
+    why: Rows of a district share it.
+    change:
+      data.cluster: district
+      covariance: clustered
+`
+	plan := writeIn(t, dir, "main.yaml", sensitivityPlan+section)
+	out := filepath.Join(dir, "out")
+	if stdout, stderr, code := runCLI("run", plan, "--out", out, "--quiet"); code != 0 {
+		t.Fatalf("exit %d: %s %s", code, stdout, stderr)
+	}
+	csvRows := readCSVTable(t, dir, "sens.csv")
+	na, s3, s3na := 0, 0, 0
+	for _, r := range csvRows {
+		if r["x2"] == "NA" {
+			na++
+		}
+		if r["site"] == "s3" {
+			s3++
+			if r["x2"] == "NA" {
+				s3na++
+			}
+		}
+	}
+	d := readSensDecisions(t, out)
+	report, _ := os.ReadFile(filepath.Join(out, "report.md"))
+	for _, w := range []string{
+		"The rows each analysis used, and how it handled missing values and clusters:",
+		fmt.Sprintf("- **without_s3**: 300 rows read, %d used; %d of 300 rows dropped for the subset, missing values or zero weight (x2: %d, outside the subset site not in {s3}: %d;", d.Sensitivity[0].Outcomes[0].RowsUsed, 300-d.Sensitivity[0].Outcomes[0].RowsUsed, na-s3na, s3),
+		fmt.Sprintf("- **imputed**: 300 rows read, 300 used; no rows dropped for missing values. Of these, %d (%s) had a missing value in the outcome or a predictor and were kept: their values were imputed by chained equations, 3 sets, each after 2 iterations, seed ", na, numfmt.Fixed(100*float64(na)/300, 1)+"%"),
+		fmt.Sprintf("`x2` (%d values) by predictive mean matching (5 donors) given y, x1. The fits of the 3 sets were pooled by Rubin's rules, intervals on t with Barnard-Rubin degrees of freedom. This assumes that values are missing at random", na),
+		fmt.Sprintf("- **clustered**: 300 rows read, %d used; %d of 300 rows dropped for missing values or zero weight (x2: %d).", 300-na, na, na),
+		"Standard errors by the cluster-robust sandwich over the 12 clusters of `district` in the rows used, intervals on t with G-1 = 11 degrees of freedom.",
+	} {
+		if !bytes.Contains(report, []byte(w)) {
+			t.Errorf("report.md lacks %q", w)
+		}
+	}
+	if t.Failed() {
+		i := bytes.Index(report, []byte("The rows each analysis used"))
+		t.Logf("report.md has:\n%s", report[i:i+min(2000, len(report)-i)])
+	}
+}
