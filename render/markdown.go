@@ -117,6 +117,7 @@ func writeSummary(d *doc, r *runner.Result) {
 				item += fmt.Sprintf(" **This model %s** (its cumulative probabilities cross; see the chosen model's section).", s)
 			}
 			item += chosenChecks(r, or)
+			item += summaryHypotheses(r, or)
 		}
 		if g := runner.ClusterCount(or.Data); r.Analysis != nil && r.Analysis.Errors.Covariance == fit.Clustered && g >= 2 && g < fit.FewClusters {
 			if r.Analysis.Errors.Jackknife() {
@@ -145,6 +146,40 @@ func writeSummary(d *doc, r *runner.Result) {
 	default:
 		d.p("The sections below give the data, every candidate model, the tests, each decision rule's verdict on each model, and then the chosen model's estimates, predicted probabilities and marginal effects. report.html holds the same text with charts.")
 	}
+}
+
+// summaryHypotheses gives, for the Summary, the plan's hypotheses as
+// tested in the outcome's chosen model, the numbers of the table
+// Hypotheses of the plan: the estimate and interval of a hypothesis of one
+// restriction (on the model's scale), the test, its p-value and the
+// adjusted one; "" when the plan has none.
+func summaryHypotheses(r *runner.Result, or *runner.OutcomeResult) string {
+	level, _ := confidence(r)
+	var hs []string
+	for _, h := range or.Hypotheses {
+		if h.Model != or.Chosen.ID {
+			continue
+		}
+		if !h.Test.OK {
+			hs = append(hs, fmt.Sprintf("%s: not computed (%s)", mdCode(h.Text), mdText(strings.TrimSuffix(h.Test.Reason, "."))))
+			continue
+		}
+		s := mdCode(h.Text) + ": "
+		if len(h.Contrasts) == 1 {
+			c := h.Contrasts[0]
+			s += fmt.Sprintf("estimate %s (%s interval %s to %s), ", numfmt.Est(c.Estimate), pct(level), numfmt.Est(c.Low), numfmt.Est(c.High))
+		}
+		s += fmt.Sprintf("%s, %s", runner.TestStatistic(h.Test), numfmt.PText(h.Test.P))
+		if h.Adjusted != nil {
+			adj := map[string]string{"holm": "Holm", "benjamini_hochberg": "Benjamini-Hochberg"}[h.Adjustment]
+			s += fmt.Sprintf(" (adjusted, %s: %s)", adj, numfmt.PText(*h.Adjusted))
+		}
+		hs = append(hs, s)
+	}
+	if len(hs) == 0 {
+		return ""
+	}
+	return fmt.Sprintf(" The plan's hypotheses in this model (Wald tests, estimates on the model's scale, p-values that do not allow for the choice of the model; see Hypotheses of the plan): %s.", strings.Join(hs, "; "))
 }
 
 // chosenChecks says, for the Summary, which of the chosen model's own
