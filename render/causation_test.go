@@ -68,7 +68,7 @@ func TestChanceTermTests(t *testing.T) {
 	const interaction = " (where such a term enters an interaction, its own slopes estimate the effect of the assignment where the other terms of the interaction have their columns at 0, the interaction how that effect differs with them, and those terms' own slopes remain associations)"
 
 	md := string(renderSource(t, dir, base, 1)["report.md"])
-	hasAll(t, "tests of each term (g alone)", termsOf(md), causal+" Its test asks whether the assignment changed the outcome at all.", others)
+	hasAll(t, "tests of each term (g alone)", termsOf(md), causal+" Its test asks whether the assignment changed the outcome, and it is most sensitive to a change of the form the model gives the assignment (with one slope at every boundary, a shift of the whole distribution towards higher or lower categories): a change of another shape, such as a move towards the middle categories from both ends, can go undetected.", others)
 	hasAll(t, "Methods (g alone)", methodsOf(md), methods+"; their p-values")
 	if strings.Contains(termsOf(md), "A small p-value says the term is associated") {
 		t.Error("the tests of each term deny every term a causal reading")

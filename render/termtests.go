@@ -174,7 +174,7 @@ func chanceTermsText(r *runner.Result, or *runner.OutcomeResult) string {
 			}
 		}
 		if len(partners) == 0 {
-			out = append(out, s+" Its test asks whether the assignment changed the outcome at all.")
+			out = append(out, s+" Its test asks whether the assignment changed the outcome, and it is most sensitive to a change of the form the model gives the assignment (with one slope at every boundary, a shift of the whole distribution towards higher or lower categories): a change of another shape, such as a move towards the middle categories from both ends, can go undetected.")
 			continue
 		}
 		var with []string
