@@ -56,7 +56,7 @@ func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	if res.DF != nil {
 		width = "the t quantile on its Barnard-Rubin degrees of freedom"
 	}
-	d.p("Slope of each predictor at each category boundary in %s, with %s intervals (estimate ± %s × standard error), next to the single slope of %s. Where the boundary slopes stay close to the parallel slope, within their intervals, one slope per predictor describes the data well; a trend across boundaries is what the parallel-lines tests detect. Cells give the estimate and, in brackets, its standard error.",
+	d.p("Slope of each predictor at each category boundary in %s, with %s intervals (estimate ± %s × standard error), next to the single slope of %s. Boundary slopes close to the parallel slope, within their intervals, are consistent with one slope per predictor, but wide intervals cannot show that the slopes are equal; a trend across boundaries is what the parallel-lines tests detect. Cells give the estimate and, in brackets, its standard error.",
 		npID, pct(level), width, parallelName(par, parID))
 	bounds := make([]string, q)
 	head := []string{"Predictor"}
