@@ -19,7 +19,10 @@ import (
 // analysis's by construction (errorsOnlyNames) is not counted as
 // agreement.
 func sensitivityLimit(r *runner.Result) string {
-	const head = "The sensitivity analyses shown are those the plan fixed in advance, and only those. "
+	head := "The sensitivity analyses shown are those the plan fixed in advance, and only those. "
+	if late := sinceFrozenNames(r); len(late) > 0 {
+		head = fmt.Sprintf("The sensitivity analyses shown are those of the plan, and only those; not fixed in advance, since they are not as registered (added or changed after the plan was frozen: see Deviations from the registered plan): %s. ", strings.Join(late, ", "))
+	}
 	const moved = "the choice and the estimates did not move under the changes tried; it is not proof that the results are robust to changes not tried (other subsets of rows, other models or predictors, another handling of missing values, data missing not at random, confounding)."
 	eo := errorsOnlyNames(r)
 	if len(eo) == 0 {
@@ -85,15 +88,19 @@ func writeSensitivity(d *doc, r *runner.Result) {
 	d.h(2, "Sensitivity analyses")
 	d.p("Each sensitivity analysis below is the primary plan with the change listed, checked as a whole plan and run on the same data through the same candidate models and decision rules (its inference beyond the estimates, such as hypotheses and marginal effects, is not run). %s", sensitivityLimit(r))
 	var rows [][]string
-	for _, sr := range r.Sensitivity {
+	for i, sr := range r.Sensitivity {
 		s := sr.Sensitivity
 		var ch []string
 		for _, c := range sensitivityChanges(r, s) {
 			ch = append(ch, fmt.Sprintf("%s: %s → %s", mdCode(c.Path), mdCode(c.From), mdCode(c.To)))
 		}
-		rows = append(rows, []string{md(mdText(s.Name)), md(strings.Join(ch, "; ")), s.Why})
+		why := s.Why
+		if note := sinceFrozenNote(r, i); note != "" {
+			why = md(mdText(s.Why) + " **" + note + ".**")
+		}
+		rows = append(rows, []string{md(mdText(s.Name)), md(strings.Join(ch, "; ")), why})
 	}
-	d.captioned("Sensitivity analyses fixed in the plan: what each changes (primary plan → this analysis) and why").table([]string{"Analysis", "Changes", "Why"}, rows)
+	d.captioned("Sensitivity analyses of the plan: what each changes (primary plan → this analysis) and why").table([]string{"Analysis", "Changes", "Why"}, rows)
 	for _, sr := range r.Sensitivity {
 		if sr.Err != "" {
 			d.p("**The sensitivity analysis %s could not be run:** %s", mdText(sr.Sensitivity.Name), mdText(sr.Err))
@@ -305,6 +312,9 @@ func sensitivitySummary(r *runner.Result) string {
 		}
 	}
 	s := fmt.Sprintf("**Sensitivity analyses** fixed in the plan: %d; under %d of the %d run the rules chose the primary analysis's model for every outcome (see Sensitivity analyses: the changes tried, and only those).", len(r.Sensitivity), same, ran)
+	if late := sinceFrozenNames(r); len(late) > 0 {
+		s = fmt.Sprintf("**Sensitivity analyses** in the plan: %d, of which %d **not as registered** (added or changed after the plan was frozen: %s); under %d of the %d run the rules chose the primary analysis's model for every outcome (see Sensitivity analyses: the changes tried, and only those).", len(r.Sensitivity), len(late), strings.Join(late, ", "), same, ran)
+	}
 	if eo := errorsOnlyNames(r); len(eo) > 0 {
 		s += fmt.Sprintf(" The agreement of %s is by construction, not evidence: changing only the standard errors, it keeps the primary analysis's estimates, and its choice but for decisions that read the covariance; only its errors and intervals are informative.", strings.Join(eo, ", "))
 	}
@@ -321,12 +331,20 @@ func sensitivityMethods(r *runner.Result) string {
 		return ""
 	}
 	var each []string
-	for _, sr := range r.Sensitivity {
+	for i, sr := range r.Sensitivity {
 		var keys []string
 		for _, c := range sensitivityChanges(r, sr.Sensitivity) {
 			keys = append(keys, fmt.Sprintf("%s set to %s", mdCode(c.Path), mdCode(c.To)))
 		}
-		each = append(each, fmt.Sprintf("%s (%s; why: %s)", mdText(sr.Sensitivity.Name), strings.Join(keys, ", "), mdText(strings.TrimSuffix(sr.Sensitivity.Why, "."))))
+		note := ""
+		if n := sinceFrozenNote(r, i); n != "" {
+			note = "; " + n
+		}
+		each = append(each, fmt.Sprintf("%s (%s; why: %s%s)", mdText(sr.Sensitivity.Name), strings.Join(keys, ", "), mdText(strings.TrimSuffix(sr.Sensitivity.Why, ".")), note))
+	}
+	if late := sinceFrozenNames(r); len(late) > 0 {
+		return fmt.Sprintf("The plan has %d sensitivity analyses, %d of them fixed in advance and %d not as registered (added or changed after the plan was frozen: %s), each the whole analysis repeated with its stated changes to the plan, on the same data, with the same candidate models and decision rules: %s. For each, the model the rules chose and the estimates of the primary analysis's chosen model are reported beside the primary analysis's; they show the effect of these changes only.",
+			len(r.Sensitivity), len(r.Sensitivity)-len(late), len(late), strings.Join(late, ", "), strings.Join(each, "; "))
 	}
 	return fmt.Sprintf("The plan fixed %d sensitivity analyses in advance, each the whole analysis repeated with its stated changes to the plan, on the same data, with the same candidate models and decision rules: %s. For each, the model the rules chose and the estimates of the primary analysis's chosen model are reported beside the primary analysis's; they show the effect of these changes only.",
 		len(r.Sensitivity), strings.Join(each, "; "))
@@ -358,4 +376,48 @@ func sensitivityCSV(r *runner.Result, or *runner.OutcomeResult, level float64, l
 	}
 	about = fmt.Sprintf("the effects of the chosen model, %s, under the primary analysis (primary) and under each sensitivity analysis the plan fixed (by its name), with %s%% intervals and the distribution they refer to (reference: normal, or t on df degrees of freedom, G-1 under cluster-robust errors from G clusters or the Barnard-Rubin degrees of freedom pooled over imputed sets; df inf for the normal); an analysis under which the model was not fitted has no rows (the report says why)", or.Chosen.ID, lv)
 	return "sensitivity", about, []string{"analysis", "parameter", "estimate", "std_error", "low_" + lv, "high_" + lv, "reference", "df"}, rows, true
+}
+
+// sinceFrozenNames are the sensitivity analyses that are not as the
+// plan's lock registered them (lock.Status.SensitivityChanges), in the
+// plan's order; none without a lock.
+func sinceFrozenNames(r *runner.Result) []string {
+	var out []string
+	for i, sr := range r.Sensitivity {
+		if len(r.Registration.SensitivityChanges(i)) > 0 {
+			out = append(out, mdText(sr.Sensitivity.Name))
+		}
+	}
+	return out
+}
+
+// sinceFrozenNote says how the sensitivity analysis at index i departs
+// from the registered plan, with the reasons the plan states ("added
+// after the plan was frozen; stated reason: ..."), or "" when it is as
+// registered.
+func sinceFrozenNote(r *runner.Result, i int) string {
+	ch := r.Registration.SensitivityChanges(i)
+	if len(ch) == 0 {
+		return ""
+	}
+	var s string
+	if lock.SensitivityAdded(ch) {
+		s = "Added after the plan was frozen"
+	} else {
+		var keys []string
+		for _, c := range ch {
+			keys = append(keys, mdCode(c.Path))
+		}
+		s = "Changed after the plan was frozen (" + strings.Join(keys, ", ") + ")"
+	}
+	var reasons []string
+	for _, c := range ch {
+		if t := strings.TrimSuffix(c.ReasonText(""), "."); t != "" && !slices.Contains(reasons, t) {
+			reasons = append(reasons, t)
+		}
+	}
+	if len(reasons) == 0 {
+		return s + "; no stated reason"
+	}
+	return s + "; stated reason: " + mdText(strings.Join(reasons, "; "))
 }

@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"ordplan/plan"
+	"ordplan/plan/lock"
 	"ordplan/runner/fit"
 )
 
@@ -182,6 +183,10 @@ type SensitivityRecord struct {
 	// Error says why it could not be run (absent when it ran).
 	Error    string                     `json:"error,omitempty"`
 	Outcomes []SensitivityOutcomeRecord `json:"outcomes"`
+	// SinceFrozen lists the changes from the plan's lock that touch this
+	// analysis (added or changed after the plan was frozen, with the
+	// reasons stated; absent when it is as registered or there is no lock).
+	SinceFrozen []lock.Explained `json:"since_frozen,omitempty"`
 }
 
 // SensitivityOutcomeRecord is one outcome under a sensitivity analysis:
@@ -204,9 +209,9 @@ type SensitivityOutcomeRecord struct {
 func sensitivityRecords(r *Result) []SensitivityRecord {
 	var out []SensitivityRecord
 	level := r.Plan.Report.ConfidenceLevel
-	for _, sr := range r.Sensitivity {
+	for i, sr := range r.Sensitivity {
 		s := sr.Sensitivity
-		rec := SensitivityRecord{Name: s.Name, Why: s.Why, Changes: s.Changes, Error: sr.Err, Outcomes: []SensitivityOutcomeRecord{}}
+		rec := SensitivityRecord{Name: s.Name, Why: s.Why, Changes: s.Changes, Error: sr.Err, Outcomes: []SensitivityOutcomeRecord{}, SinceFrozen: r.Registration.SensitivityChanges(i)}
 		for _, or := range r.Outcomes {
 			sor := sr.Outcome(or.Outcome.Column)
 			if sor == nil {
@@ -236,12 +241,14 @@ type SensitivityRunRecord struct {
 	Changes    []string         `json:"changes"`
 	Imputation []*ChainedRecord `json:"imputation,omitempty"`
 	Error      string           `json:"error,omitempty"`
+	// SinceFrozen is as in SensitivityRecord.
+	SinceFrozen []lock.Explained `json:"since_frozen,omitempty"`
 }
 
 func sensitivityRunRecords(r *Result) []SensitivityRunRecord {
 	var out []SensitivityRunRecord
-	for _, sr := range r.Sensitivity {
-		rec := SensitivityRunRecord{Name: sr.Sensitivity.Name, Changes: sr.Sensitivity.Changes, Error: sr.Err}
+	for i, sr := range r.Sensitivity {
+		rec := SensitivityRunRecord{Name: sr.Sensitivity.Name, Changes: sr.Sensitivity.Changes, Error: sr.Err, SinceFrozen: r.Registration.SensitivityChanges(i)}
 		if sr.Result != nil {
 			rec.Imputation = imputationRecords(sr.Result)
 		}

@@ -423,3 +423,89 @@ func TestSensitivityRowsAndMethods(t *testing.T) {
 		t.Logf("report.md has:\n%s", report[i:i+min(2000, len(report)-i)])
 	}
 }
+
+// A sensitivity analysis added to a frozen plan (and one changed after
+// it) is not said to be fixed in advance: the report's summary, its
+// section, its limits and its methods name it as not registered, with
+// the reason stated, and decisions.json and run.json record its changes
+// from the lock (since_frozen); an analysis as registered carries none.
+func TestSensitivityAddedAfterFreezing(t *testing.T) {
+	dir := t.TempDir()
+	sensitivityData(t, dir)
+	frozen := sensitivityPlan + `sensitivity:
+  - name: without_s3
+    why: Site s3 changed its protocol halfway.
+    change:
+      subset:
+        - {column: site, none_of: [s3]}
+`
+	planPath := writeIn(t, dir, "main.yaml", frozen)
+	if stdout, stderr, code := runCLI("freeze", planPath); code != 0 {
+		t.Fatalf("freeze: exit %d: %s %s", code, stdout, stderr)
+	}
+	writeIn(t, dir, "main.yaml", frozen+`  - name: probit
+    why: Another link.
+    change:
+      models.links: [probit]
+deviations:
+  - key: sensitivity[1]
+    reason: A reviewer asked for another link.
+`)
+	out := filepath.Join(dir, "out")
+	if stdout, stderr, code := runCLI("run", planPath, "--out", out, "--quiet"); code != 0 {
+		t.Fatalf("run: exit %d: %s %s", code, stdout, stderr)
+	}
+	report, err := os.ReadFile(filepath.Join(out, "report.md"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{
+		"**Sensitivity analyses** in the plan: 2, of which 1 **not as registered** (added or changed after the plan was frozen: probit)",
+		"not fixed in advance, since they are not as registered (added or changed after the plan was frozen: see Deviations from the registered plan): probit.",
+		"| Another link. **Added after the plan was frozen; stated reason: A reviewer asked for another link.** |",
+		"The plan has 2 sensitivity analyses, 1 of them fixed in advance and 1 not as registered",
+	} {
+		if !bytes.Contains(report, []byte(want)) {
+			t.Errorf("report.md lacks %q", want)
+		}
+	}
+	for _, bad := range []string{"The sensitivity analyses shown are those the plan fixed in advance", "The plan fixed 2 sensitivity analyses in advance", "fixed in the plan: 2"} {
+		if bytes.Contains(report, []byte(bad)) {
+			t.Errorf("report.md still says %q", bad)
+		}
+	}
+	type since struct {
+		Sensitivity []struct {
+			Name        string `json:"name"`
+			SinceFrozen []struct {
+				Key, From, Reason string
+			} `json:"since_frozen"`
+		} `json:"sensitivity"`
+	}
+	for _, f := range []string{"decisions.json", "run.json"} {
+		b, err := os.ReadFile(filepath.Join(out, f))
+		if err != nil {
+			t.Fatal(err)
+		}
+		var s since
+		if err := json.Unmarshal(b, &s); err != nil {
+			t.Fatal(err)
+		}
+		if len(s.Sensitivity) != 2 || len(s.Sensitivity[0].SinceFrozen) != 0 || len(s.Sensitivity[1].SinceFrozen) != 1 ||
+			s.Sensitivity[1].SinceFrozen[0].Key != "sensitivity[1]" || s.Sensitivity[1].SinceFrozen[0].From != "(absent)" ||
+			s.Sensitivity[1].SinceFrozen[0].Reason != "A reviewer asked for another link." {
+			t.Errorf("%s: sensitivity records %+v", f, s.Sensitivity)
+		}
+	}
+
+	// A key of the registered analysis changed, without a reason: said so
+	// with the key.
+	writeIn(t, dir, "main.yaml", strings.Replace(frozen, "none_of: [s3]", "none_of: [s2]", 1))
+	if stdout, stderr, code := runCLI("run", planPath, "--out", out, "--quiet", "--allow-unregistered-changes"); code != 0 {
+		t.Fatalf("run: exit %d: %s %s", code, stdout, stderr)
+	}
+	report, _ = os.ReadFile(filepath.Join(out, "report.md"))
+	if want := "**Changed after the plan was frozen (`sensitivity[0].change.subset[0].none_of`); no stated reason.**"; !bytes.Contains(report, []byte(want)) {
+		t.Errorf("report.md lacks %q", want)
+	}
+}

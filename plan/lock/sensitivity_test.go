@@ -55,3 +55,33 @@ func TestSensitivityChangesAreDeviations(t *testing.T) {
 		t.Fatalf("why: %+v", st.Changes)
 	}
 }
+
+// SensitivityChanges takes, for the analysis at an index of the plan, the
+// whole list added, its item added or a key of it changed; an item
+// removed is named by its index in the frozen list and is left out, and
+// without a lock there is nothing.
+func TestSensitivityChangesOfAnAnalysis(t *testing.T) {
+	st := &Status{Lock: &File{}, Changes: []Explained{
+		{Change: Change{Path: "sensitivity[0]", From: `{"name": "a"}`, To: Absent}},
+		{Change: Change{Path: "sensitivity[0].why", From: `"x"`, To: `"y"`}, Reason: "typo"},
+		{Change: Change{Path: "sensitivity[1]", From: Absent, To: `{"name": "c"}`}},
+		{Change: Change{Path: "sensitivity[10].name", From: `"d"`, To: `"e"`}},
+	}}
+	if got := st.SensitivityChanges(0); len(got) != 1 || got[0].Path != "sensitivity[0].why" || SensitivityAdded(got) {
+		t.Errorf("analysis 0: %+v", got)
+	}
+	if got := st.SensitivityChanges(1); len(got) != 1 || !SensitivityAdded(got) {
+		t.Errorf("analysis 1: %+v", got)
+	}
+	if got := st.SensitivityChanges(2); len(got) != 0 {
+		t.Errorf("analysis 2: %+v", got)
+	}
+	whole := &Status{Lock: &File{}, Changes: []Explained{{Change: Change{Path: "sensitivity", From: Absent, To: `[{"name": "a"}]`}}}}
+	if got := whole.SensitivityChanges(0); len(got) != 1 || !SensitivityAdded(got) {
+		t.Errorf("the list added: %+v", got)
+	}
+	var none *Status
+	if got := none.SensitivityChanges(0); got != nil {
+		t.Errorf("no status: %+v", got)
+	}
+}

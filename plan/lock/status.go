@@ -222,3 +222,32 @@ func (e *UnexplainedError) Error() string {
 	b.WriteString("\nstate the reason for each in the plan's deviations list (- key: KEY, reason: WHY), or run with --allow-unregistered-changes (the report then says so in its first lines)")
 	return b.String()
 }
+
+// SensitivityChanges lists the changes from the lock that touch the
+// plan's sensitivity analysis at index i: the analysis added since the
+// plan was frozen (the whole list, or its item, new), or a key of it
+// changed. An analysis removed since is named by its index in the frozen
+// list, not the plan's, and is left out. None without a lock.
+func (s *Status) SensitivityChanges(i int) []Explained {
+	if s == nil || s.Lock == nil {
+		return nil
+	}
+	item := fmt.Sprintf("sensitivity[%d]", i)
+	var out []Explained
+	for _, c := range s.Changes {
+		switch {
+		case c.Path == "sensitivity" && c.To != Absent,
+			c.Path == item && c.To != Absent,
+			strings.HasPrefix(c.Path, item+"."):
+			out = append(out, c)
+		}
+	}
+	return out
+}
+
+// SensitivityAdded says whether the plan's sensitivity analysis at index
+// i is new since the plan was frozen (changes: its SensitivityChanges):
+// the frozen plan had no such item, not a changed key of one it had.
+func SensitivityAdded(changes []Explained) bool {
+	return slices.ContainsFunc(changes, func(c Explained) bool { return c.From == Absent && !strings.Contains(c.Path, ".") })
+}
