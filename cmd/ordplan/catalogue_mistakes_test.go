@@ -274,7 +274,7 @@ func mistakeItems(dir string) []badInput {
 					t.Fatal(err)
 				}
 			},
-			want: []string{"D50.csv: 12 rows read, 10 used; 2 of 12 rows dropped for missing values or zero weight (a: 2)"}},
+			want: []string{"D50.csv: 12 rows read, 10 used; 2 of 12 rows dropped for missing values (a: 2)"}},
 		{id: "P66", name: "ordplan init into a folder that does not exist", args: []string{"init", filepath.Join(dir, "P66-nodir", "x.yaml"), "--data", filepath.Join(dir, "d.csv")}, code: 1,
 			want:  []string{"ordplan: init: cannot write P66-nodir/x.yaml: the folder P66-nodir does not exist: make it first, or give another path"},
 			check: noFolder("P66-nodir")},

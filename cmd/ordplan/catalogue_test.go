@@ -1221,7 +1221,7 @@ func catalogue(dir string) (items []badInput) {
 		{id: "D5", name: "NaN written as a value", args: fitArgs(d("nan.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`nan.csv:3: column "a": value "nan" is NaN, not a number (leave the cell empty to mark a missing value)`}},
 		{id: "D11", name: "NaN as a missing-value marker", args: fitArgs(d("nantoken.csv"), "--predictors", "a,b"), code: 0,
-			want: []string{"8 rows read, 7 used; 1 of 8 rows dropped for missing values or zero weight (a: 1)"}},
+			want: []string{"8 rows read, 7 used; 1 of 8 rows dropped for missing values (a: 1)"}},
 		{id: "D6", name: "infinite value", args: fitArgs(d("inf.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`inf.csv:4: column "a": value "-Inf" is infinite`}},
 		{id: "D7", name: "number too large for a float", args: fitArgs(d("overflow.csv"), "--predictors", "a,b"), code: 1,
@@ -1267,7 +1267,7 @@ func catalogue(dir string) (items []badInput) {
 			plan: edit("  file: d.csv\n", "  file: subna.csv\n  missing_values: [\"NA\", \"-9\"]\n") + "subset:\n  - {column: age, at_least: 18}\n", code: 0,
 			check: func(t *testing.T, dir, out, errs string) {
 				b, err := os.ReadFile(filepath.Join(dir, "D30-out", "report.md"))
-				for _, want := range []string{"60 rows read, 40 used; 20 of 60 rows dropped for the subset, missing values or zero weight (age: 17, outside the subset age >= 18: 3; a row with several of these is counted once, under the first); among them, rows that miss a column the subset's conditions read, so that whether they belong to the subset is unknown: 17 (counted as missing values, not as outside the subset)",
+				for _, want := range []string{"60 rows read, 40 used; 20 of 60 rows dropped for the subset or missing values (age: 17, outside the subset age >= 18: 3; a row with several of these is counted once, under the first); among them, rows that miss a column the subset's conditions read, so that whether they belong to the subset is unknown: 17 (counted as missing values, not as outside the subset)",
 					"Of 60 rows, 40 met the plan's subset conditions (age >= 18), 3 failed them and 17 could not be judged because they miss a column the conditions read (17 miss age)."} {
 					if err != nil || !strings.Contains(string(b), want) {
 						t.Errorf("report.md lacks %q (%v)", want, err)

@@ -737,7 +737,7 @@ func TestFitPartsJudgedAsOneDataSet(t *testing.T) {
 		}
 		return ""
 	}
-	if a, b := dataLine(local), dataLine(r[0]); a == "" || a != b || !strings.Contains(a, "rows dropped for missing values or zero weight (age: ") {
+	if a, b := dataLine(local), dataLine(r[0]); a == "" || a != b || !strings.Contains(a, "rows dropped for missing values (age: ") {
 		t.Errorf("data line here %q, over the queue %q", a, b)
 	}
 	few := []string{parts[0], parts[1]}

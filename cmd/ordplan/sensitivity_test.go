@@ -408,10 +408,10 @@ func TestSensitivityRowsAndMethods(t *testing.T) {
 	report, _ := os.ReadFile(filepath.Join(out, "report.md"))
 	for _, w := range []string{
 		"The rows each analysis used, and how it handled missing values and clusters:",
-		fmt.Sprintf("- **without_s3**: 300 rows read, %d used; %d of 300 rows dropped for the subset, missing values or zero weight (x2: %d, outside the subset site not in {s3}: %d;", d.Sensitivity[0].Outcomes[0].RowsUsed, 300-d.Sensitivity[0].Outcomes[0].RowsUsed, na-s3na, s3),
+		fmt.Sprintf("- **without_s3**: 300 rows read, %d used; %d of 300 rows dropped for the subset or missing values (x2: %d, outside the subset site not in {s3}: %d;", d.Sensitivity[0].Outcomes[0].RowsUsed, 300-d.Sensitivity[0].Outcomes[0].RowsUsed, na-s3na, s3),
 		fmt.Sprintf("- **imputed**: 300 rows read, 300 used; no rows dropped for missing values. Of these, %d (%s) had a missing value in the outcome or a predictor and were kept: their values were imputed by chained equations, 3 sets, each after 2 iterations, seed ", na, numfmt.Fixed(100*float64(na)/300, 1)+"%"),
 		fmt.Sprintf("`x2` (%d values) by predictive mean matching (5 donors) given y, x1. The fits of the 3 sets were pooled by Rubin's rules, intervals on t with Barnard-Rubin degrees of freedom. This assumes that values are missing at random", na),
-		fmt.Sprintf("- **clustered**: 300 rows read, %d used; %d of 300 rows dropped for missing values or zero weight (x2: %d).", 300-na, na, na),
+		fmt.Sprintf("- **clustered**: 300 rows read, %d used; %d of 300 rows dropped for missing values (x2: %d).", 300-na, na, na),
 		"Standard errors by the cluster-robust sandwich over the 12 clusters of `district` in the rows used, intervals on t with G-1 = 11 degrees of freedom.",
 	} {
 		if !bytes.Contains(report, []byte(w)) {

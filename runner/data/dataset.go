@@ -2,6 +2,7 @@ package data
 
 import (
 	"fmt"
+	"slices"
 	"strings"
 )
 
@@ -152,9 +153,18 @@ func (d *Dataset) DropSummary() string {
 	if d.RowsDropped == 0 {
 		return "no rows dropped for missing values"
 	}
-	why := "missing values or zero weight"
-	if d.RowsOutside > 0 {
+	// Zero weight is named only where rows can have one: with a weights
+	// column, or where a count is of rows of weight 0 (ZeroWeight's
+	// "w = 0"); without weights the words would suggest rows no data have.
+	weighted := d.Weights != nil || slices.ContainsFunc(d.Dropped, func(dc DropCount) bool { return !dc.Subset && strings.HasSuffix(dc.Column, " = 0") })
+	why := "missing values"
+	switch {
+	case d.RowsOutside > 0 && weighted:
 		why = "the subset, missing values or zero weight"
+	case d.RowsOutside > 0:
+		why = "the subset or missing values"
+	case weighted:
+		why = "missing values or zero weight"
 	}
 	return fmt.Sprintf("%d of %d rows dropped for %s (%s)%s",
 		d.RowsDropped, d.RowsRead, why, dropList(d.Dropped), d.UndecidedSummary())
