@@ -57,15 +57,23 @@ func ReadPrevious(prevDir string) (*Decisions, error) {
 
 // ChangesFrom is Changes with the earlier decisions read (ReadPrevious).
 // With the earlier run's record (its run.json, nil when it could not be
-// read) and this run's columns (Result.Columns; nil: not compared), the
-// columns that changed are named (dataChanges).
-func ChangesFrom(prev *Decisions, prevRec *RunRecord, cur *Decisions, cols []OutcomeColumns) []string {
+// read) and this run (res: its columns, Result.DataColumns, and its
+// sensitivity analyses'; nil: not compared), the columns that changed
+// are named (dataChanges).
+func ChangesFrom(prev *Decisions, prevRec *RunRecord, cur *Decisions, res *Result) []string {
 	var out []string
 	planChanged := prev.Plan.SHA256 != cur.Plan.SHA256
 	if planChanged {
 		out = append(out, fmt.Sprintf("The plan changed (sha256 %.12s... -> %.12s...).", prev.Plan.SHA256, cur.Plan.SHA256))
 	}
+	var cols []OutcomeColumns
+	if res != nil {
+		cols = res.DataColumns()
+	}
 	out = append(out, dataChanges(prev, prevRec, cur, cols, planChanged)...)
+	if dataChanged := prev.Data.SHA256 != cur.Data.SHA256; res != nil && prevRec != nil && prevRec.DataColumns != nil && (dataChanged || planChanged) {
+		out = append(out, sensitivityColumnChanges(prevRec, res, dataChanged)...)
+	}
 	switch pn, cn := prev.NewRows, cur.NewRows; {
 	case pn == nil && cn != nil:
 		out = append(out, fmt.Sprintf("Predictions for new rows (%s) are new.", cn.File))
@@ -298,7 +306,7 @@ func RecordChanges(was, now *RunRecord) []string {
 		out = append(out, "the plan changed")
 	}
 	dc := dataRefChanges(was.Data, now.Data)
-	if names := changedColumns(was.DataColumns, now.DataColumns); len(dc) > 0 && len(names) > 0 {
+	if names := recordChangedColumns(was, now); len(dc) > 0 && len(names) > 0 {
 		dc[len(dc)-1] += fmt.Sprintf(" (%s %s)", plural("column", len(names)), words.AndList(names))
 	}
 	out = append(out, dc...)

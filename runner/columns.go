@@ -310,6 +310,25 @@ func changedColumns(was, now []OutcomeColumns) []string {
 	return names
 }
 
+// recordChangedColumns is changedColumns of two run records: the
+// primary analysis's columns, then those of each sensitivity analysis
+// recorded in both under its name that the primary's do not name.
+func recordChangedColumns(was, now *RunRecord) []string {
+	names := changedColumns(was.DataColumns, now.DataColumns)
+	for _, s := range now.Sensitivity {
+		i := slices.IndexFunc(was.Sensitivity, func(w SensitivityRunRecord) bool { return w.Name == s.Name })
+		if i < 0 {
+			continue
+		}
+		for _, c := range changedColumns(was.Sensitivity[i].DataColumns, s.DataColumns) {
+			if !slices.Contains(names, c) {
+				names = append(names, c)
+			}
+		}
+	}
+	return names
+}
+
 // sameRows says whether two records hold the same rows, every used value
 // of each together, in any order.
 func sameRows(was, now OutcomeColumns) bool {
@@ -368,7 +387,7 @@ func outcomeColumnChanges(was, now OutcomeColumns) []string {
 		return []string{who + noColumnChanged + " (the data changed in columns it does not read, or in rows it does not use: outside the subset, or dropped for a missing value)"}
 	}
 	if changed == 0 && sameRows(was, now) {
-		return []string{fmt.Sprintf("%sthe %d rows used are the same, in another order: no value of a column changed (a reordering of the rows changes no fit beyond rounding in the last digits, so no column is named)", who, now.Rows)}
+		return []string{fmt.Sprintf("%sthe %d%s: no value of a column changed (a reordering of the rows changes no fit beyond rounding in the last digits, so no column is named)", who, now.Rows, rowsReordered)}
 	}
 	var out []string
 	for i, p := range pairs {
@@ -388,6 +407,10 @@ func outcomeColumnChanges(was, now OutcomeColumns) []string {
 	}
 	return out
 }
+
+// rowsReordered is the words of the line of rows that are the same in
+// another order, after their number.
+const rowsReordered = " rows used are the same, in another order"
 
 // notComparedLead begins the line of the columns the earlier record does
 // not hold.
@@ -459,4 +482,70 @@ func numPair(a, b float64) (string, string) {
 		x, y = strconv.FormatFloat(a, 'g', -1, 64), strconv.FormatFloat(b, 'g', -1, 64)
 	}
 	return x, y
+}
+
+// sensitivityColumnChanges says what changed in the data each
+// sensitivity analysis of res read (its run.json record's data_columns
+// against the earlier record's of the analysis of the same name), where
+// the primary analysis's lines do not say it already: a column only the
+// analysis reads (its cluster column), rows only it uses (another
+// subset, incomplete rows it imputes). Each line is led by the
+// analysis's name. An analysis the earlier record holds no columns of
+// (new, could not be run, an older program's record) is not compared;
+// without a change of the data (the plan alone changed), lines saying
+// that nothing changed are left out, as dataChanges leaves them.
+func sensitivityColumnChanges(prevRec *RunRecord, res *Result, dataChanged bool) []string {
+	primaryNow := res.DataColumns()
+	var out []string
+	for _, sr := range res.Sensitivity {
+		if sr.Result == nil {
+			continue
+		}
+		i := slices.IndexFunc(prevRec.Sensitivity, func(p SensitivityRunRecord) bool { return p.Name == sr.Sensitivity.Name })
+		if i < 0 || prevRec.Sensitivity[i].DataColumns == nil {
+			continue
+		}
+		was := prevRec.Sensitivity[i].DataColumns
+		for _, n := range sr.Result.DataColumns() {
+			w := slices.IndexFunc(was, func(o OutcomeColumns) bool { return o.Outcome == n.Outcome })
+			if w < 0 {
+				continue
+			}
+			var primary []string
+			pw := slices.IndexFunc(prevRec.DataColumns, func(o OutcomeColumns) bool { return o.Outcome == n.Outcome })
+			pn := slices.IndexFunc(primaryNow, func(o OutcomeColumns) bool { return o.Outcome == n.Outcome })
+			if pw >= 0 && pn >= 0 {
+				primary = outcomeColumnChanges(prevRec.DataColumns[pw], primaryNow[pn])
+			}
+			who := n.Outcome + ": "
+			for _, line := range outcomeColumnChanges(was[w], n) {
+				if !dataChanged && (strings.Contains(line, noColumnChanged) || strings.Contains(line, notComparedLead)) {
+					continue
+				}
+				if !saidAlready(who, line, primary) {
+					out = append(out, fmt.Sprintf("Sensitivity analysis %s: %s.", sr.Sensitivity.Name, line))
+				}
+			}
+		}
+	}
+	return out
+}
+
+// saidAlready reports whether a line of one outcome's column changes
+// (who leads it) under a sensitivity analysis says what a line of the
+// primary analysis's says already: the same line, the same column in the
+// same role changed (its summaries may differ over other rows), or the
+// rows reordered.
+func saidAlready(who, line string, primary []string) bool {
+	subject := func(l string) string {
+		if i := strings.Index(l, " changed: "); i >= 0 && strings.HasPrefix(l, who+"column ") {
+			return l[:i]
+		}
+		if strings.HasPrefix(l, who) && strings.Contains(l, rowsReordered) {
+			return who + rowsReordered
+		}
+		return ""
+	}
+	s := subject(line)
+	return slices.ContainsFunc(primary, func(p string) bool { return p == line || s != "" && subject(p) == s })
 }

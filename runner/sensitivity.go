@@ -243,6 +243,11 @@ type SensitivityRunRecord struct {
 	Error      string           `json:"error,omitempty"`
 	// SinceFrozen is as in SensitivityRecord.
 	SinceFrozen []lock.Explained `json:"since_frozen,omitempty"`
+	// DataColumns are the columns the analysis read, as the run's own
+	// data_columns (Result.DataColumns of the analysis's run), so that a
+	// rerun can say what changed in columns or rows only it reads (a
+	// cluster column, rows another subset keeps).
+	DataColumns []OutcomeColumns `json:"data_columns,omitempty"`
 }
 
 func sensitivityRunRecords(r *Result) []SensitivityRunRecord {
@@ -251,6 +256,7 @@ func sensitivityRunRecords(r *Result) []SensitivityRunRecord {
 		rec := SensitivityRunRecord{Name: sr.Sensitivity.Name, Changes: sr.Sensitivity.Changes, Error: sr.Err, SinceFrozen: r.Registration.SensitivityChanges(i)}
 		if sr.Result != nil {
 			rec.Imputation = imputationRecords(sr.Result)
+			rec.DataColumns = sr.Result.DataColumns()
 		}
 		out = append(out, rec)
 	}

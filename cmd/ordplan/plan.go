@@ -162,7 +162,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	var changes []string
 	if prev != nil {
 		prevRec, _ := readRecord(filepath.Join(*previous, recordFile))
-		changes = runner.ChangesFrom(prev, prevRec, dec, res.DataColumns())
+		changes = runner.ChangesFrom(prev, prevRec, dec, res)
 	}
 	files, err := render.Outputs(res, dec, changes)
 	if err != nil {

@@ -203,3 +203,64 @@ func TestRerunNamesChangedPart(t *testing.T) {
 		t.Errorf("parts called the data file:\n%s", stdout)
 	}
 }
+
+// A column only a sensitivity analysis reads (its cluster column) is
+// compared too: a corrected cluster id changes no column of the primary
+// analysis, whose line says so, and the analysis's line names the column
+// (its errors changed); the same correction rerun into the folder names
+// it on stderr. A column the primary analysis names already is not named
+// again for an analysis that reads it too.
+func TestRerunNamesSensitivityColumns(t *testing.T) {
+	dir := t.TempDir()
+	data := filepath.Join(dir, "d.csv")
+	p := filepath.Join(dir, "plan.yaml")
+	os.WriteFile(p, []byte(fmt.Sprintf(rerunPlan, "file: d.csv")+`sensitivity:
+  - name: by_site
+    why: Rows of a site share an interviewer.
+    change: {data.cluster: site, covariance: clustered}
+`), 0o644)
+	write := func(edit func(i int, f []string)) {
+		rows := rerunRows(edit)
+		for i := range rows {
+			rows[i] += fmt.Sprintf(",s%d", i%12)
+		}
+		if err := os.WriteFile(data, []byte("y,age,grp,site\n"+strings.Join(rows, "\n")+"\n"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	write(nil)
+	first := filepath.Join(dir, "first")
+	if _, e, code := runCLI("run", p, "--out", first, "--quiet"); code != 0 {
+		t.Fatal(e)
+	}
+	b, _ := os.ReadFile(data)
+	os.WriteFile(data, []byte(strings.Replace(string(b), ",s3\n", ",s4\n", 1)), 0o644)
+	stdout, e, code := runCLI("run", p, "--out", filepath.Join(dir, "site"), "--previous", first, "--quiet")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, e)
+	}
+	for _, w := range []string{
+		"since the previous run: y: no column this outcome uses changed in the rows it uses",
+		"since the previous run: Sensitivity analysis by_site: y: column site (cluster) changed: other values, with the same numbers of values, of clusters and of missing values.\n",
+	} {
+		if !strings.Contains(stdout, w) {
+			t.Errorf("no %q in:\n%s", w, stdout)
+		}
+	}
+	// Rerun into the first run's folder: stderr names the column.
+	_, e, code = runCLI("run", p, "--out", first, "--quiet")
+	if code != 0 || !strings.Contains(e, "the data file d.csv changed (column site); kept them in ") {
+		t.Errorf("rerun into the folder: exit %d: %s", code, e)
+	}
+	// An age corrected: the primary analysis names it, the analysis does
+	// not name it again.
+	write(func(i int, f []string) {
+		if i == 5 {
+			f[1] = "61"
+		}
+	})
+	stdout, e, code = runCLI("run", p, "--out", filepath.Join(dir, "age"), "--previous", filepath.Join(dir, "site"), "--quiet")
+	if code != 0 || !strings.Contains(stdout, "y: column age (predictor) changed: ") || strings.Contains(stdout, "Sensitivity analysis by_site: y: column age") {
+		t.Errorf("age corrected: exit %d: %s %s", code, stdout, e)
+	}
+}
