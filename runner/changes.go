@@ -102,7 +102,7 @@ func ChangesFrom(prev *Decisions, prevRec *RunRecord, cur *Decisions, res *Resul
 		if pc != cc {
 			out = append(out, fmt.Sprintf("%s: the chosen model changed from %s to %s.", o.Outcome, pc, cc))
 		} else if o.Chosen != nil {
-			out = append(out, chosenChanges(o.Outcome, cc, p, o)...)
+			out = append(out, chosenChanges(o.Outcome, cc, p, o, sameRowsRecorded(prevRec, cols, o.Outcome))...)
 		}
 		for _, id := range sortedKeys(o.Final) {
 			v := o.Final[id]
@@ -196,19 +196,35 @@ func countsChange(p, o OutcomeDecisions) string {
 }
 
 // roundingOnly reports whether a chosen model's fits in the earlier run
-// (p, log-likelihood llp) and this one (o, llo) can differ by rounding
-// alone: the same rows used and counts per category, and log-likelihoods
-// equal to 1e-9 of their size (summing the same rows in another order
-// moves them by far less; a changed value moves them by far more).
-func roundingOnly(p, o OutcomeDecisions, llp, llo float64) bool {
-	return p.RowsUsed == o.RowsUsed && slices.Equal(p.Counts, o.Counts) && math.Abs(llp-llo) <= 1e-9*math.Max(1, math.Abs(llp))
+// (p, log-likelihood llp) and this one (o, llo) differ by rounding
+// alone: the columns' fingerprints show the same rows used, maybe in
+// another order (sameRows, sameRowsRecorded), with the same counts per
+// category, and log-likelihoods equal to 1e-9 of their size (summing the
+// same rows in another order moves them by far less). Without the
+// fingerprints it is not rounding: a value changed in its last digits
+// moves the log-likelihood as little.
+func roundingOnly(p, o OutcomeDecisions, llp, llo float64, sameRows bool) bool {
+	return sameRows && p.RowsUsed == o.RowsUsed && slices.Equal(p.Counts, o.Counts) && math.Abs(llp-llo) <= 1e-9*math.Max(1, math.Abs(llp))
+}
+
+// sameRowsRecorded says whether the earlier run's record (prevRec) and
+// this run's columns (cols) show the same rows of an outcome, every used
+// value of each together, in any order; false when either lacks them.
+func sameRowsRecorded(prevRec *RunRecord, cols []OutcomeColumns, outcome string) bool {
+	if prevRec == nil {
+		return false
+	}
+	i := slices.IndexFunc(prevRec.DataColumns, func(c OutcomeColumns) bool { return c.Outcome == outcome })
+	j := slices.IndexFunc(cols, func(c OutcomeColumns) bool { return c.Outcome == outcome })
+	return i >= 0 && j >= 0 && sameRows(prevRec.DataColumns[i], cols[j])
 }
 
 // chosenChanges says, for a model chosen in both runs, how far its
 // estimates moved (the largest change in the earlier run's standard
 // errors, with the parameter) and which of the plan's hypotheses tested
 // in it changed their p-value; nothing when its estimates are the same.
-func chosenChanges(outcome, id string, p, o OutcomeDecisions) []string {
+// sameRows: the data's fingerprints show the same rows (roundingOnly).
+func chosenChanges(outcome, id string, p, o OutcomeDecisions, sameRows bool) []string {
 	pf, of := fitDecision(p, id), fitDecision(o, id)
 	if pf == nil || of == nil || pf.LogLik == nil || of.LogLik == nil {
 		return nil
@@ -232,15 +248,17 @@ func chosenChanges(outcome, id string, p, o OutcomeDecisions) []string {
 		}
 	}
 	switch {
-	case worst > 0 && numfmt.Fixed(worst, 3) == "0.000" && roundingOnly(p, o, *pf.LogLik, *of.LogLik):
+	case worst > 0 && numfmt.Fixed(worst, 3) == "0.000" && roundingOnly(p, o, *pf.LogLik, *of.LogLik, sameRows):
 		// Rounding alone (the same rows summed in another order): no
 		// estimate moves at the digits written.
 		out = append(out, fmt.Sprintf("%s: %s, chosen in both runs: its estimates moved by less than 0.001 standard errors (of the earlier run), in the last digits only.", outcome, id))
 	case worst > 0 && numfmt.Fixed(worst, 3) == "0.000":
 		// A real change of the data too small to show at the digits
-		// written: not rounding, which the log-likelihood tells.
+		// written: not rounding, which the log-likelihood tells (written
+		// with the digits that tell the two apart).
+		was, now := numPair(*pf.LogLik, *of.LogLik)
 		out = append(out, fmt.Sprintf("%s: %s, chosen in both runs: its estimates moved by less than 0.001 standard errors (of the earlier run); log-likelihood %s -> %s.",
-			outcome, id, numfmt.Num(*pf.LogLik), numfmt.Num(*of.LogLik)))
+			outcome, id, was, now))
 	case worst > 0:
 		out = append(out, fmt.Sprintf("%s: %s, chosen in both runs: its estimates moved by at most %s standard errors (of the earlier run), the most %s (%s -> %s); log-likelihood %s -> %s.",
 			outcome, id, numfmt.Fixed(worst, 3), at, numfmt.Est(pf.Estimates[at]), numfmt.Est(of.Estimates[at]), numfmt.Fixed(*pf.LogLik, 3), numfmt.Fixed(*of.LogLik, 3)))

@@ -134,7 +134,7 @@ func TestChosenChangesSkipsParametersWithoutScale(t *testing.T) {
 		return OutcomeDecisions{Fits: []FitDecision{{ID: "m", FitRecord: FitRecord{LogLik: ll,
 			Estimates: map[string]float64{"b": b, "c": c}, StdErrors: map[string]float64{"b": 0.1, "c": 0}}}}}
 	}
-	lines := chosenChanges("y", "m", mk(1, 0, &ll0), mk(1.3, 50, &ll1))
+	lines := chosenChanges("y", "m", mk(1, 0, &ll0), mk(1.3, 50, &ll1), false)
 	if len(lines) != 1 || !strings.Contains(lines[0], "at most 3.000 standard errors") || !strings.Contains(lines[0], "the most b ") {
 		t.Errorf("got %q", lines)
 	}
@@ -220,13 +220,21 @@ func TestChosenChangesRoundingOrTinyChange(t *testing.T) {
 		o.Fits[0].Estimates = map[string]float64{"b": 1.00001}
 		return o
 	}
-	if lines := chosenChanges("y", "m", mk(-100, 10), moved(-100-1e-12, 10)); len(lines) != 1 || !strings.HasSuffix(lines[0], "in the last digits only.") {
+	if lines := chosenChanges("y", "m", mk(-100, 10), moved(-100-1e-12, 10), true); len(lines) != 1 || !strings.HasSuffix(lines[0], "in the last digits only.") {
 		t.Errorf("rounding: %q", lines)
 	}
 	for name, now := range map[string]OutcomeDecisions{"value changed": moved(-100.25, 10), "row added": moved(-100-1e-12, 11)} {
-		lines := chosenChanges("y", "m", mk(-100, 10), now)
+		lines := chosenChanges("y", "m", mk(-100, 10), now, true)
 		if len(lines) != 1 || strings.Contains(lines[0], "last digits") || !strings.Contains(lines[0], "less than 0.001 standard errors (of the earlier run); log-likelihood -100 -> ") {
 			t.Errorf("%s: %q", name, lines)
 		}
+	}
+	// A value changed in its last digits (5.2 made 5.2000001): the same
+	// number of rows and counts, the log-likelihood the same to 1e-9,
+	// but the fingerprints show other rows: not rounding, and the two
+	// log-likelihoods are written with the digits that tell them apart.
+	lines := chosenChanges("y", "m", mk(-100, 10), moved(-100-1e-11, 10), false)
+	if len(lines) != 1 || strings.Contains(lines[0], "last digits") || !strings.HasSuffix(lines[0], "log-likelihood -100 -> -100.00000000001.") {
+		t.Errorf("a value changed in its last digits: %q", lines)
 	}
 }
