@@ -458,11 +458,23 @@ func causationSentence(p *plan.Plan) string {
 		return s
 	}
 	s += " That reading is of the comparison given the other predictors in the models, and holds only if they were measured before the assignment: a predictor the assignment could itself have changed would take up part of its effect."
+	s += " " + conditionalWords(len(chance) > 1)
 	s += fmt.Sprintf(" The other predictors (%s) were not assigned by chance: the models describe how the outcome is associated with them in these data, which does not show that they cause a change in it; neither do their predicted probabilities or marginal effects, which are summaries of the same fitted association.", words.AndList(others))
 	if interactsWithChance(p, chance) {
 		s += " Where the effect of an assignment differs with another predictor (an interaction), that describes for whom the assignment changed the outcome more or less, not what the other predictor causes."
 	}
 	return s
+}
+
+// conditionalWords says that the slopes of a term assigned by chance,
+// with other predictors in the models, are effects given them, which the
+// population-averaged effect need not equal even without confounding.
+func conditionalWords(several bool) string {
+	its, effect := "Its", "the assignment's effect"
+	if several {
+		its, effect = "Their", "each assignment's effect"
+	}
+	return its + " slopes and odds ratios are effects given those predictors: such effects do not collapse, so " + effect + " on the same scale averaged over the whole population is usually nearer 0 (an odds ratio nearer 1), even though the assignment was made by chance; the average marginal effects, where reported, are effects on each category's probability averaged over the rows used."
 }
 
 // interactsWithChance reports whether an interaction of the plan joins a
