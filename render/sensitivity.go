@@ -286,6 +286,9 @@ func sensitivityRows(sr *runner.SensitivityResult, sor *runner.OutcomeResult) st
 			ref = fmt.Sprintf("pooled with G-1 = %d complete-data degrees of freedom", g-1)
 		}
 		s += fmt.Sprintf(" Standard errors by %s over the %d clusters of %s in the rows used, %s.", kind, g, mdCode(col), ref)
+		if sor.Imputed != nil && sor.Imputed.Chained != nil {
+			s += clusterCaution(col)
+		}
 	}
 	return s
 }

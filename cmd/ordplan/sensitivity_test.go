@@ -385,6 +385,14 @@ func TestSensitivityRowsAndMethods(t *testing.T) {
     change:
       data.cluster: district
       covariance: clustered
+  - name: imputed_clustered
+    why: Both.
+    change:
+      data.missing: impute
+      data.imputation: {sets: 3, iterations: 2}
+      data.cluster: district
+      covariance: clustered
+      few_clusters: jackknife
 `
 	plan := writeIn(t, dir, "main.yaml", sensitivityPlan+section)
 	out := filepath.Join(dir, "out")
@@ -412,7 +420,10 @@ func TestSensitivityRowsAndMethods(t *testing.T) {
 		fmt.Sprintf("- **imputed**: 300 rows read, 300 used; no rows dropped for missing values. Of these, %d (%s) had a missing value in the outcome or a predictor and were kept: their values were imputed by chained equations, 3 sets, each after 2 iterations, seed ", na, numfmt.Fixed(100*float64(na)/300, 1)+"%"),
 		fmt.Sprintf("`x2` (%d values) by predictive mean matching (5 donors) given y, x1. The fits of the 3 sets were pooled by Rubin's rules, intervals on t with Barnard-Rubin degrees of freedom. This assumes that values are missing at random", na),
 		fmt.Sprintf("- **clustered**: 300 rows read, %d used; %d of 300 rows dropped for missing values (x2: %d).", 300-na, na, na),
-		"Standard errors by the cluster-robust sandwich over the 12 clusters of `district` in the rows used, intervals on t with G-1 = 11 degrees of freedom.",
+		"Standard errors by the cluster-robust sandwich over the 12 clusters of `district` in the rows used, intervals on t with G-1 = 11 degrees of freedom.\n",
+		// Imputed and clustered: the pooling's complete-data df, and the
+		// imputation models' leaving out the clusters.
+		"Standard errors by the delete-one-cluster jackknife over the 12 clusters of `district` in the rows used, pooled with G-1 = 11 complete-data degrees of freedom. The imputation models leave out the clusters of `district`",
 	} {
 		if !bytes.Contains(report, []byte(w)) {
 			t.Errorf("report.md lacks %q", w)
