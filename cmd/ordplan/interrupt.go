@@ -59,6 +59,10 @@ type interruptWatch struct {
 	mu      sync.Mutex
 	stage   folderStage
 	pending os.Signal // an interrupt held during the write
+	// progress, when set (outputLock.progress), is silenced before the
+	// interrupt's line is written, so that the line is the command's
+	// last: the fits go on while the lock is released.
+	progress *progress
 }
 
 // stopOnInterrupt ends the process as the interrupt s would have, had it
@@ -113,6 +117,7 @@ func (w *interruptWatch) watch() {
 // stop says what the folder holds and ends the command (stopOnInterrupt).
 // The caller holds w.mu, so that the stage cannot change meanwhile.
 func (w *interruptWatch) stop(s os.Signal) {
+	w.progress.mute()
 	fmt.Fprintln(w.stderr, w.message(s))
 	if w.release != nil {
 		w.release()
@@ -190,4 +195,17 @@ func (w *interruptWatch) end() {
 	if w.pending != nil {
 		w.stop(w.pending)
 	}
+}
+
+// progress is the progress report of the command holding the folder, on
+// stderr (stderrProgress), silenced when an interrupt stops the command
+// (interruptWatch.stop).
+func (l *outputLock) progress(stderr io.Writer) *progress {
+	p := stderrProgress(stderr)
+	if l.w != nil {
+		l.w.mu.Lock()
+		l.w.progress = p
+		l.w.mu.Unlock()
+	}
+	return p
 }

@@ -48,3 +48,28 @@ func TestHangupStopsLikeTerm(t *testing.T) {
 		t.Errorf("the folder and its lock are still there")
 	}
 }
+
+// The interrupt's line is the command's last: a progress line of the
+// fits, which go on while the lock is released, is not written after it
+// (one read "sensitivity analysis imputed: safety, imputed set 5/5: 37
+// of 37 fits" below "ordplan run: interrupted ...").
+func TestNoProgressAfterInterruptLine(t *testing.T) {
+	stops := catchInterrupts(t)
+	dir := filepath.Join(t.TempDir(), "out")
+	var stderr bytes.Buffer
+	l, err := claimOutput(dir, "run", []string{"report.md"}, &stderr)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer l.Unlock()
+	p := l.progress(&stderr)
+	p.Fitted("y", "m", 2, 2)
+	before := stderr.String()
+	interruptSelf()
+	said := stoppedWith(t, stops, &stderr)
+	p.Fitted("y", "m", 2, 2)
+	p.Imputed("y", 1, 5)
+	if got := stderr.String(); got != said || !bytes.HasPrefix([]byte(got), []byte(before+"ordplan run: interrupted before writing its outputs")) {
+		t.Errorf("stderr %q, want the progress line, then the interrupt's line last", got)
+	}
+}

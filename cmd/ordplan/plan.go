@@ -142,7 +142,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	defer lock.Unlock()
 	opt := runner.Options{Workers: *workers}
 	if !*quiet {
-		opt.Progress = stderrProgress(stderr)
+		opt.Progress = lock.progress(stderr)
 	}
 	var queueLog io.Writer
 	if !*quiet {

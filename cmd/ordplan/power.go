@@ -93,7 +93,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 	}
 	opt := simulate.PowerOptions{Sizes: ns, Replicates: *reps, Alpha: *alpha, Workers: *workers, TempDir: tmp}
 	if !*quiet {
-		opt.Progress = stderrProgress(stderr)
+		opt.Progress = olock.progress(stderr)
 	}
 	if qcfg != nil {
 		ctx, c, done, err := connectQueue(*qcfg, *qf.deadline)

@@ -25,6 +25,19 @@ type progress struct {
 	prev    time.Time // of the last step heard
 	last    time.Time // last plain line
 	width   int       // of the last live line
+	muted   bool      // an interrupt's line was written: no line after it
+}
+
+// mute stops the report: a step after it writes nothing. A step being
+// written when it is called is written first. A nil report is left as it
+// is.
+func (p *progress) mute() {
+	if p == nil {
+		return
+	}
+	p.mu.Lock()
+	p.muted = true
+	p.mu.Unlock()
 }
 
 // stderrProgress reports on stderr: a live line when it is the process's
@@ -58,6 +71,9 @@ func (p *progress) Imputed(outcome string, done, total int) {
 func (p *progress) step(outcome, things string, done, total int) {
 	p.mu.Lock()
 	defer p.mu.Unlock()
+	if p.muted {
+		return
+	}
 	t := p.now()
 	if outcome != p.outcome {
 		// A new stage began when the one before ended: its first step's

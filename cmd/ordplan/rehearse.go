@@ -103,7 +103,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	}
 	opt := runner.Options{Workers: *workers}
 	if !*quiet {
-		opt.Progress = stderrProgress(stderr)
+		opt.Progress = olock.progress(stderr)
 	}
 	res, err := runner.Run(&q, opt)
 	if err != nil {
