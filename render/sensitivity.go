@@ -345,12 +345,66 @@ func sensitivityMethods(r *runner.Result) string {
 		}
 		each = append(each, fmt.Sprintf("%s (%s; why: %s%s)", mdText(sr.Sensitivity.Name), strings.Join(keys, ", "), mdText(strings.TrimSuffix(sr.Sensitivity.Why, ".")), note))
 	}
-	if late := sinceFrozenNames(r); len(late) > 0 {
-		return fmt.Sprintf("The plan has %d sensitivity analyses, %d of them fixed in advance and %d not as registered (added or changed after the plan was frozen: %s), each the whole analysis repeated with its stated changes to the plan, on the same data, with the same candidate models and decision rules: %s. For each, the model the rules chose and the estimates of the primary analysis's chosen model are reported beside the primary analysis's; they show the effect of these changes only.",
-			len(r.Sensitivity), len(r.Sensitivity)-len(late), len(late), strings.Join(late, ", "), strings.Join(each, "; "))
+	how := ""
+	if hs := sensitivityMethodsHow(r); len(hs) > 0 {
+		how = " " + strings.Join(hs, " ")
 	}
-	return fmt.Sprintf("The plan fixed %d sensitivity analyses in advance, each the whole analysis repeated with its stated changes to the plan, on the same data, with the same candidate models and decision rules: %s. For each, the model the rules chose and the estimates of the primary analysis's chosen model are reported beside the primary analysis's; they show the effect of these changes only.",
-		len(r.Sensitivity), strings.Join(each, "; "))
+	if late := sinceFrozenNames(r); len(late) > 0 {
+		return fmt.Sprintf("The plan has %d sensitivity analyses, %d of them fixed in advance and %d not as registered (added or changed after the plan was frozen: %s), each the whole analysis repeated with its stated changes to the plan, on the same data, with the same candidate models and decision rules: %s.%s For each, the model the rules chose and the estimates of the primary analysis's chosen model are reported beside the primary analysis's; they show the effect of these changes only.",
+			len(r.Sensitivity), len(r.Sensitivity)-len(late), len(late), strings.Join(late, ", "), strings.Join(each, "; "), how)
+	}
+	return fmt.Sprintf("The plan fixed %d sensitivity analyses in advance, each the whole analysis repeated with its stated changes to the plan, on the same data, with the same candidate models and decision rules: %s.%s For each, the model the rules chose and the estimates of the primary analysis's chosen model are reported beside the primary analysis's; they show the effect of these changes only.",
+		len(r.Sensitivity), strings.Join(each, "; "), how)
+}
+
+// sensitivityMethodsHow says, for the Methods draft, how each sensitivity
+// analysis that imputes or clusters did so (the section's
+// sensitivityRows in a sentence each): the imputation's rows, sets,
+// iterations and models, and the clusters of its errors; an outcome is
+// named when the plan has several.
+func sensitivityMethodsHow(r *runner.Result) []string {
+	var out []string
+	for _, sr := range r.Sensitivity {
+		if sr.Result == nil || sr.Result.Analysis == nil {
+			continue
+		}
+		for _, sor := range sr.Result.Outcomes {
+			var parts []string
+			if im := sor.Imputed; im != nil && im.Chained != nil {
+				ch := im.Chained
+				var models []string
+				for _, m := range ch.Models {
+					w := modelWords[m.Method]
+					if m.Method == chained.MeanMatching {
+						w = fmt.Sprintf(w, ch.Donors)
+					}
+					models = append(models, fmt.Sprintf("%s for %s", w, mdCode(m.Column)))
+				}
+				parts = append(parts, fmt.Sprintf("the %d rows (%s of %d) with a missing value were multiply imputed by chained equations (%d sets, %d iterations each; %s; every model given the outcome and the other columns used) and the fits pooled by Rubin's rules", ch.RowsIncomplete, sharePct(ch.RowsIncomplete, im.Rows), im.Rows, ch.Sets, ch.Iterations, strings.Join(models, ", ")))
+			}
+			if col := sr.Result.Plan.Data.Cluster; col != "" && sr.Result.Analysis.Errors.Covariance == fit.Clustered {
+				g := runner.ClusterCount(sor.Data)
+				kind := "cluster-robust"
+				if sr.Result.Analysis.Errors.Jackknife() {
+					kind = "the delete-one-cluster jackknife's"
+				}
+				ref := fmt.Sprintf("with t on %d degrees of freedom", g-1)
+				if sor.Imputed != nil {
+					ref = fmt.Sprintf("pooled with %d complete-data degrees of freedom", g-1)
+				}
+				parts = append(parts, fmt.Sprintf("standard errors were %s over the %d clusters of %s, %s", kind, g, mdCode(col), ref))
+			}
+			if len(parts) == 0 {
+				continue
+			}
+			who := mdText(sr.Sensitivity.Name)
+			if len(sr.Result.Outcomes) > 1 {
+				who += ", outcome " + mdCode(sor.Outcome.Column)
+			}
+			out = append(out, fmt.Sprintf("In %s, %s.", who, strings.Join(parts, "; ")))
+		}
+	}
+	return out
 }
 
 // limitIf is s when cond holds, else "" (an item the limits leave out).
