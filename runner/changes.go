@@ -10,6 +10,7 @@ import (
 	"strings"
 
 	"ordplan/internal/words"
+	"ordplan/plan/lock"
 	"ordplan/render/numfmt"
 	"ordplan/runner/data"
 )
@@ -64,7 +65,11 @@ func ChangesFrom(prev *Decisions, prevRec *RunRecord, cur *Decisions, res *Resul
 	var out []string
 	planChanged := prev.Plan.SHA256 != cur.Plan.SHA256
 	if planChanged {
-		out = append(out, fmt.Sprintf("The plan changed (sha256 %.12s... -> %.12s...).", prev.Plan.SHA256, cur.Plan.SHA256))
+		var keys string
+		if prevRec != nil && res != nil {
+			keys = planKeyChanges(prevRec.Plan.Canonical, res.Plan.Canonical())
+		}
+		out = append(out, fmt.Sprintf("The plan changed (sha256 %.12s... -> %.12s...)%s.", prev.Plan.SHA256, cur.Plan.SHA256, keys))
 	}
 	var cols []OutcomeColumns
 	if res != nil {
@@ -125,6 +130,30 @@ func ChangesFrom(prev *Decisions, prevRec *RunRecord, cur *Decisions, res *Resul
 		out = append(out, "No decision changed.")
 	}
 	return out
+}
+
+// planKeyChanges names the keys of the plan's canonical form that
+// changed between two runs (lock.Diff, as a plan is compared with its
+// lock), each with its earlier and its new value: ": rules[3].alpha 0.05
+// -> 0.01; ...", or "" when either record lacks the canonical form (an
+// older program's) or only the plan's wording changed (comments, key
+// order, the deviations list).
+func planKeyChanges(was, now json.RawMessage) string {
+	if len(was) == 0 || len(now) == 0 {
+		return ""
+	}
+	changes, err := lock.Diff(was, now)
+	if err != nil || len(changes) == 0 {
+		if err == nil {
+			return "; its canonical form is the same: only its wording changed (comments, the order of keys, the deviations list)"
+		}
+		return ""
+	}
+	keys := make([]string, len(changes))
+	for i, c := range changes {
+		keys[i] = fmt.Sprintf("%s %s -> %s", c.Path, c.From, c.To)
+	}
+	return ": " + strings.Join(keys, "; ")
 }
 
 // dataChanges says how the data changed: the file, or each part that

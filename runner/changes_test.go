@@ -1,6 +1,7 @@
 package runner
 
 import (
+	"encoding/json"
 	"fmt"
 	"math"
 	"os"
@@ -236,5 +237,26 @@ func TestChosenChangesRoundingOrTinyChange(t *testing.T) {
 	lines := chosenChanges("y", "m", mk(-100, 10), moved(-100-1e-11, 10), false)
 	if len(lines) != 1 || strings.Contains(lines[0], "last digits") || !strings.HasSuffix(lines[0], "log-likelihood -100 -> -100.00000000001.") {
 		t.Errorf("a value changed in its last digits: %q", lines)
+	}
+}
+
+// A plan changed between two runs: --previous names each key of the
+// canonical form (run.json's plan.canonical) that changed with both
+// values, as a lock's comparison does (the command's test:
+// TestPreviousNamesPlanKeys); a plan whose canonical form is the same (a comment added) is
+// said to differ in its wording only; an earlier record without the
+// canonical form (an older program's) gives the hashes alone. Expected
+// by hand from the two forms.
+func TestPlanKeyChanges(t *testing.T) {
+	was := json.RawMessage(`{"title": "T", "tests": {"alpha": 0.05}, "rules": [{"choose": {"by": "aic"}}]}`)
+	now := json.RawMessage(`{"title": "T", "tests": {"alpha": 0.01}, "rules": [{"choose": {"by": "bic"}}]}`)
+	if got := planKeyChanges(was, now); got != `: tests.alpha 0.05 -> 0.01; rules[0].choose.by "aic" -> "bic"` {
+		t.Errorf("keys: %q", got)
+	}
+	if got := planKeyChanges(was, was); !strings.Contains(got, "only its wording changed") {
+		t.Errorf("the same form: %q", got)
+	}
+	if got := planKeyChanges(nil, now); got != "" {
+		t.Errorf("an older record: %q", got)
 	}
 }

@@ -41,6 +41,11 @@ type PlanRef struct {
 	File   string `json:"file"`
 	Title  string `json:"title"`
 	SHA256 string `json:"sha256"`
+	// Canonical is the plan's canonical form (plan.Plan.Canonical, as a
+	// lock holds it), in the run.json of run and rehearse only (not in
+	// decisions.json, which is the same for the same data in any format):
+	// --previous names the keys that changed from it (ChangesFrom).
+	Canonical json.RawMessage `json:"canonical,omitempty"`
 }
 
 // DataRef names the data of a run.
@@ -407,7 +412,7 @@ type RunRecord struct {
 func RunJSON(r *Result, madeBy string, files map[string][]byte) ([]byte, error) {
 	data := withSheet(dataRef(r), r)
 	rec := RunRecord{Program: "ordplan", Version: r.Version,
-		Plan: PlanRef{File: filepath.Base(r.Plan.Path), Title: r.Plan.Title, SHA256: r.Plan.Hash},
+		Plan: PlanRef{File: filepath.Base(r.Plan.Path), Title: r.Plan.Title, SHA256: r.Plan.Hash, Canonical: r.Plan.Canonical()},
 		Data: &data, NewRows: newRowsSheet(newRowsRef(r), r), Imputed: r.Imputed, DataColumns: r.DataColumns(), Seed: r.Plan.Seed}
 	rec.Timestamp = r.Started
 	rec.Imputation = imputationRecords(r)

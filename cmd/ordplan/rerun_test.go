@@ -264,3 +264,28 @@ func TestRerunNamesSensitivityColumns(t *testing.T) {
 		t.Errorf("age corrected: exit %d: %s %s", code, stdout, e)
 	}
 }
+
+// The plan changed between two runs: --previous names the key and both
+// values (from run.json's plan.canonical); a comment alone changes the
+// plan's hash but not its canonical form, which is said.
+func TestPreviousNamesPlanKeys(t *testing.T) {
+	dir := t.TempDir()
+	writeRows(t, filepath.Join(dir, "d.csv"), rerunRows(nil))
+	p := filepath.Join(dir, "plan.yaml")
+	src := fmt.Sprintf(rerunPlan, "file: d.csv")
+	os.WriteFile(p, []byte(src), 0o644)
+	first := filepath.Join(dir, "first")
+	if _, e, code := runCLI("run", p, "--out", first, "--quiet"); code != 0 {
+		t.Fatal(e)
+	}
+	os.WriteFile(p, []byte(strings.Replace(src, "by: aic", "by: bic", 1)), 0o644)
+	stdout, e, code := runCLI("run", p, "--out", filepath.Join(dir, "bic"), "--previous", first, "--quiet")
+	if code != 0 || !strings.Contains(stdout, `...): rules[0].choose.by "aic" -> "bic".`) {
+		t.Errorf("a key changed: exit %d: %s %s", code, stdout, e)
+	}
+	os.WriteFile(p, []byte(src+"# reviewed\n"), 0o644)
+	stdout, e, code = runCLI("run", p, "--out", filepath.Join(dir, "comment"), "--previous", first, "--quiet")
+	if code != 0 || !strings.Contains(stdout, "...); its canonical form is the same: only its wording changed") {
+		t.Errorf("a comment: exit %d: %s %s", code, stdout, e)
+	}
+}
