@@ -700,6 +700,12 @@ func recordChange(kept string, record []byte) string {
 	if changed := runner.RecordChanges(was, &now); len(changed) > 0 {
 		return words.AndList(changed)
 	}
+	if was.Revision == "" || now.Revision == "" {
+		// A build without its source revision (go run, a copy without
+		// .git, -buildvcs=false) says only its version: a program changed
+		// under the same version looks the same.
+		return "nothing its run.json records differs (the plan, every input file, the program's version and the command line are the same; the program's source revision is not recorded, so a change of the program under the same version does not show)"
+	}
 	return "nothing its run.json records differs (the plan, every input file, the program's build and the command line are the same)"
 }
 

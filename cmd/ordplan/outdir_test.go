@@ -302,7 +302,7 @@ func TestInterruptHeldDuringWrite(t *testing.T) {
 	if len(kept) != 1 {
 		t.Fatalf("kept earlier runs: %v", kept)
 	}
-	if want := "ordplan run: output folder " + dir + " held an earlier run whose outputs differ from this run's: nothing its run.json records differs (the plan, every input file, the program's build and the command line are the same); kept them in " + kept[0] + " (--previous " + kept[0] + " lists what changed)\n" +
+	if want := "ordplan run: output folder " + dir + " held an earlier run whose outputs differ from this run's: nothing its run.json records differs (the plan, every input file, the program's version and the command line are the same; the program's source revision is not recorded, so a change of the program under the same version does not show); kept them in " + kept[0] + " (--previous " + kept[0] + " lists what changed)\n" +
 		"ordplan run: interrupted while writing its outputs, and stopped once they were all in place; output folder " + dir + ": this run's complete outputs, as its run.json lists them\n"; msg != want {
 		t.Errorf("stderr %q, want %q", msg, want)
 	}
