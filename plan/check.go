@@ -107,10 +107,12 @@ func (d *decoder) checkColumns(p *Plan) {
 			d.errAt(key, "%s is both an outcome and a predictor (%s, line %d)", quote(o.Column), pk, d.line(pk))
 		}
 	}
-	roles := []struct{ key, col string }{
-		{"data.weights", p.Data.Weights},
-		{"data.offset", p.Data.Offset},
-		{"data.cluster", p.Data.Cluster},
+	// Each column is read in one role; why is what the second role would
+	// need, said when a predictor takes it too.
+	roles := []struct{ key, col, why string }{
+		{"data.weights", p.Data.Weights, "a weight says how much a row counts, which a predictor's slope cannot also say"},
+		{"data.offset", p.Data.Offset, "an offset enters the linear predictor with its coefficient fixed at 1, a predictor with its slope estimated: give the column one of the two"},
+		{"data.cluster", p.Data.Cluster, "the cluster ids are read as labels, the predictor as values or levels; to cluster the errors by a column that is also a predictor (sites as fixed effects and errors clustered by site), put a copy of the column in the data under another name and name the copy here (the fixed effects' own clustered errors are then not to be read: each rests on one cluster)"},
 	}
 	for _, r := range roles {
 		if r.col == "" {
@@ -119,7 +121,7 @@ func (d *decoder) checkColumns(p *Plan) {
 		if _, ok := outcomeAt[r.col]; ok {
 			d.errAt(r.key, "%s is an outcome column", quote(r.col))
 		} else if predOK && slices.Contains(p.SourceColumns(), r.col) {
-			d.errAt(r.key, "%s is also listed in predictors", quote(r.col))
+			d.errAt(r.key, "%s is also listed in predictors (%s): ordplan reads each column in one role; %s", quote(r.col), d.sourceKey(p, r.col), r.why)
 		}
 	}
 }
