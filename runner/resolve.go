@@ -486,14 +486,67 @@ func (a *Analysis) FewClusters(r Reading, ds *data.Dataset) string {
 	if a.Errors.Covariance != fit.Clustered || len(ds.Cluster) == 0 {
 		return ""
 	}
-	few := a.fewClusters(r, ds)
-	if c := a.clusterCase(r, ds); c != "" {
-		if few != "" {
-			return few + "; also " + c
+	var out []string
+	for _, w := range []string{a.fewClusters(r, ds), a.clusterCase(r, ds), oneClusterLevels(r, ds)} {
+		if w != "" {
+			out = append(out, w)
 		}
-		return c
 	}
-	return few
+	return strings.Join(out, "; also ")
+}
+
+// oneClusterLevels warns of the levels of categorical predictors coded
+// against a reference (each level its own 0/1 column) whose rows all lie
+// in one cluster: a cluster's own fixed effect, or a level met in one
+// cluster. The score of such a column sums to 0 over its rows at the
+// maximum, so its sum in every cluster is 0 and its cluster-robust
+// standard error has nothing to rest on (it came out near 0, t above 20,
+// for sites as fixed effects with errors clustered by site). It names up
+// to three such levels and counts the others, or returns "".
+func oneClusterLevels(r Reading, ds *data.Dataset) string {
+	var found []string
+	for _, src := range r.Design.Sources {
+		if src.Cat == nil || (src.Cat.Coding != "" && src.Cat.Coding != design.Treatment) {
+			continue
+		}
+		j := slices.Index(ds.Predictors, src.Name)
+		if j < 0 {
+			continue
+		}
+		ref := 0
+		if src.Cat.Reference != "" {
+			ref = max(slices.Index(src.Cat.Levels, src.Cat.Reference), 0)
+		}
+		in := make([]string, len(src.Cat.Levels)) // the one cluster of a level's rows so far
+		many := make([]bool, len(src.Cat.Levels))
+		for i := 0; i < ds.N; i++ {
+			l := int(ds.X[i*ds.K+j])
+			if l < 0 || l >= len(in) || many[l] {
+				continue
+			}
+			switch c := ds.Cluster[i]; {
+			case in[l] == "":
+				in[l] = c
+			case in[l] != c:
+				many[l] = true
+			}
+		}
+		for l, c := range in {
+			if l != ref && c != "" && !many[l] {
+				found = append(found, fmt.Sprintf("%s = %s (cluster %s)", src.Name, src.Cat.Levels[l], strconv.Quote(c)))
+			}
+		}
+	}
+	if len(found) == 0 {
+		return ""
+	}
+	more := ""
+	if len(found) > 3 {
+		more = fmt.Sprintf(" and %d more", len(found)-3)
+		found = found[:3]
+	}
+	return fmt.Sprintf("the rows of %s%s lie in one cluster each (a cluster's own fixed effect, or a level met in one cluster): the score of such a level's column sums to 0 over its rows at the maximum, so its sum in each cluster is 0 and the cluster-robust standard errors, tests and intervals of its effects have nothing to rest on (they come out far too small); read its estimates only, or give it errors that do not cluster by this column",
+		strings.Join(found, ", "), more)
 }
 
 // clusterCase warns of cluster ids of the rows used that differ only in

@@ -186,6 +186,9 @@ func mistakeItems(dir string) []badInput {
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  delimiter: \";\"\n  decimal: \",\"\n"),
 			want: []string{`P71.yaml:4:14: data.delimiter: unknown delimiter ";" (want comma, semicolon or tab): write the word semicolon for ";"`,
 				`P71.yaml:5:12: data.decimal: unknown decimal mark "," (want point or comma): write the word comma for ","`}},
+		{id: "P72", name: "the cluster, weights or offset column also a predictor", args: []string{"check", "--no-data"}, code: 1,
+			plan: edit("  file: d.csv\n", "  file: d.csv\n  cluster: a\n") + "covariance: clustered\n",
+			want: []string{`P72.yaml:4:12: data.cluster: "a" is also listed in predictors (predictors[0]): ordplan reads each column in one role; the cluster ids are read as labels, the predictor as values or levels; to cluster the errors by a column that is also a predictor (sites as fixed effects and errors clustered by site), put a copy of the column in the data under another name and name the copy here`}},
 		{id: "D49", name: "an empty cell under data.missing_values that leaves the empty text out", args: []string{"check"}, code: 1,
 			setup: func(t *testing.T, dir, id string) {
 				if err := os.WriteFile(filepath.Join(dir, id+".csv"), []byte("y,a,b\n1,0.5,1\n2,,0\n3,0.1,1\n1,-99,0\n2,0.7,1\n3,0.9,0\n"), 0o644); err != nil {

@@ -2008,6 +2008,12 @@ func catalogue(dir string) (items []badInput) {
 		{id: "W28", name: "cluster ids that differ only in letter case (warned, not merged)", setup: clusterSpellings, code: 0,
 			args: fitArgs(d("clspell.csv"), "--predictors", "a,b", "--covariance", "clustered", "--cluster", "word"),
 			want: []string{"), 96 clusters\n", `Warning: --cluster: column "word" holds cluster ids that differ only in letter case ("K0" and "k0", and 47 more such sets of ids): each is counted as a cluster of its own; if they name one cluster, write its id alike in every row.`}},
+		{id: "W29", name: "a level of a categorical predictor met in one cluster (sites as fixed effects, errors clustered by site)", code: 0,
+			setup: func(t *testing.T, dir, id string) {
+				withColumns(t, dir, "fe.csv", "site,sid", func(i int, _ []string) string { return fmt.Sprintf("s%d,s%d", i%6, i%6) })
+			},
+			args: fitArgs(d("fe.csv"), "--predictors", "a,site|levels=s0/s1/s2/s3/s4/s5", "--covariance", "clustered", "--cluster", "sid"),
+			want: []string{`also the rows of site = s1 (cluster "s1"), site = s2 (cluster "s2"), site = s3 (cluster "s3") and 2 more lie in one cluster each (a cluster's own fixed effect, or a level met in one cluster): the score of such a level's column sums to 0 over its rows at the maximum, so its sum in each cluster is 0 and the cluster-robust standard errors, tests and intervals of its effects have nothing to rest on (they come out far too small); read its estimates only, or give it errors that do not cluster by this column.`}},
 		{id: "W11", name: "few_clusters without clustered errors", args: []string{"check"},
 			plan: edit("rules:", "few_clusters: jackknife\nrules:"), code: 1,
 			want: []string{`W11.yaml:11:15: few_clusters: jackknife corrects clustered errors, but covariance is "observed": set covariance: clustered with data.cluster naming the cluster column, or remove few_clusters`}},
