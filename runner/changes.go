@@ -133,27 +133,36 @@ func ChangesFrom(prev *Decisions, prevRec *RunRecord, cur *Decisions, res *Resul
 }
 
 // planKeyChanges names the keys of the plan's canonical form that
-// changed between two runs (lock.Diff, as a plan is compared with its
-// lock), each with its earlier and its new value: ": rules[3].alpha 0.05
-// -> 0.01; ...", or "" when either record lacks the canonical form (an
-// older program's) or only the plan's wording changed (comments, key
-// order, the deviations list).
+// changed between two runs (planKeys), each with its earlier and its new
+// value: ": rules[3].alpha 0.05 -> 0.01; ...", says when only the plan's
+// wording changed, or is "" when either record lacks the canonical form
+// (an older program's).
 func planKeyChanges(was, now json.RawMessage) string {
-	if len(was) == 0 || len(now) == 0 {
+	keys, known := planKeys(was, now)
+	switch {
+	case !known:
 		return ""
-	}
-	changes, err := lock.Diff(was, now)
-	if err != nil || len(changes) == 0 {
-		if err == nil {
-			return "; its canonical form is the same: only its wording changed (comments, the order of keys, the deviations list)"
-		}
-		return ""
-	}
-	keys := make([]string, len(changes))
-	for i, c := range changes {
-		keys[i] = fmt.Sprintf("%s %s -> %s", c.Path, c.From, c.To)
+	case len(keys) == 0:
+		return "; its canonical form is the same: only its wording changed (comments, the order of keys, the deviations list)"
 	}
 	return ": " + strings.Join(keys, "; ")
+}
+
+// planKeys lists the keys of two canonical forms of a plan that differ
+// (lock.Diff, as a plan is compared with its lock), each with both
+// values; known is false when either form is missing or unreadable.
+func planKeys(was, now json.RawMessage) (keys []string, known bool) {
+	if len(was) == 0 || len(now) == 0 {
+		return nil, false
+	}
+	changes, err := lock.Diff(was, now)
+	if err != nil {
+		return nil, false
+	}
+	for _, c := range changes {
+		keys = append(keys, fmt.Sprintf("%s %s -> %s", c.Path, c.From, c.To))
+	}
+	return keys, true
 }
 
 // dataChanges says how the data changed: the file, or each part that
@@ -350,7 +359,14 @@ func verdictPhrase(v Verdict) string {
 func RecordChanges(was, now *RunRecord) []string {
 	var out []string
 	if was.Plan.SHA256 != now.Plan.SHA256 {
-		out = append(out, "the plan changed")
+		switch keys, known := planKeys(was.Plan.Canonical, now.Plan.Canonical); {
+		case known && len(keys) > 0:
+			out = append(out, "the plan changed ("+strings.Join(keys, "; ")+")")
+		case known:
+			out = append(out, "the plan's wording changed (not its canonical form)")
+		default:
+			out = append(out, "the plan changed")
+		}
 	}
 	dc := dataRefChanges(was.Data, now.Data)
 	if names := recordChangedColumns(was, now); len(dc) > 0 && len(names) > 0 {

@@ -259,4 +259,20 @@ func TestPlanKeyChanges(t *testing.T) {
 	if got := planKeyChanges(nil, now); got != "" {
 		t.Errorf("an older record: %q", got)
 	}
+	// The same in the words a rerun into the folder says (RecordChanges).
+	rec := func(sum string, canon json.RawMessage) *RunRecord {
+		return &RunRecord{Version: "1", Plan: PlanRef{SHA256: sum, Canonical: canon}}
+	}
+	for _, c := range []struct {
+		was, now *RunRecord
+		want     string
+	}{
+		{rec("a", was), rec("b", now), `the plan changed (tests.alpha 0.05 -> 0.01; rules[0].choose.by "aic" -> "bic")`},
+		{rec("a", was), rec("b", was), "the plan's wording changed (not its canonical form)"},
+		{rec("a", nil), rec("b", now), "the plan changed"},
+	} {
+		if got := strings.Join(RecordChanges(c.was, c.now), "; "); got != c.want {
+			t.Errorf("RecordChanges: %q, want %q", got, c.want)
+		}
+	}
 }
