@@ -491,7 +491,8 @@ func numPair(a, b float64) (string, string) {
 // analysis reads (its cluster column), rows only it uses (another
 // subset, incomplete rows it imputes). Each line is led by the
 // analysis's name. An analysis the earlier record holds no columns of
-// (new, could not be run, an older program's record) is not compared;
+// (new, could not be run, an older program's record: said so when the
+// data changed) is not compared;
 // without a change of the data (the plan alone changed), lines saying
 // that nothing changed are left out, as dataChanges leaves them.
 func sensitivityColumnChanges(prevRec *RunRecord, res *Result, dataChanged bool) []string {
@@ -502,7 +503,15 @@ func sensitivityColumnChanges(prevRec *RunRecord, res *Result, dataChanged bool)
 			continue
 		}
 		i := slices.IndexFunc(prevRec.Sensitivity, func(p SensitivityRunRecord) bool { return p.Name == sr.Sensitivity.Name })
-		if i < 0 || prevRec.Sensitivity[i].DataColumns == nil {
+		if i < 0 {
+			continue
+		}
+		if prevRec.Sensitivity[i].DataColumns == nil {
+			if dataChanged && prevRec.Sensitivity[i].Error == "" {
+				// Ran then, but its record (an older program's) holds no
+				// columns: a change only it reads cannot be said.
+				out = append(out, fmt.Sprintf("Sensitivity analysis %s: the earlier run did not record the columns it read (its run.json was written by an older ordplan), so what changed in columns or rows only it reads cannot be said.", sr.Sensitivity.Name))
+			}
 			continue
 		}
 		was := prevRec.Sensitivity[i].DataColumns
