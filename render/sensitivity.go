@@ -350,11 +350,19 @@ func sensitivityMethods(r *runner.Result) string {
 		how = " " + strings.Join(hs, " ")
 	}
 	if late := sinceFrozenNames(r); len(late) > 0 {
-		return fmt.Sprintf("The plan has %d sensitivity analyses, %d of them fixed in advance and %d not as registered (added or changed after the plan was frozen: %s), each the whole analysis repeated with its stated changes to the plan, on the same data, with the same candidate models and decision rules: %s.%s For each, the model the rules chose and the estimates of the primary analysis's chosen model are reported beside the primary analysis's; they show the effect of these changes only.",
-			len(r.Sensitivity), len(r.Sensitivity)-len(late), len(late), strings.Join(late, ", "), strings.Join(each, "; "), how)
+		return fmt.Sprintf("The plan has %s, %d of them fixed in advance and %d not as registered (added or changed after the plan was frozen: %s), each the whole analysis repeated with its stated changes to the plan, on the same data, with the same candidate models and decision rules: %s.%s For each, the model the rules chose and the estimates of the primary analysis's chosen model are reported beside the primary analysis's; they show the effect of these changes only.",
+			sensitivityCount(len(r.Sensitivity)), len(r.Sensitivity)-len(late), len(late), strings.Join(late, ", "), strings.Join(each, "; "), how)
 	}
-	return fmt.Sprintf("The plan fixed %d sensitivity analyses in advance, each the whole analysis repeated with its stated changes to the plan, on the same data, with the same candidate models and decision rules: %s.%s For each, the model the rules chose and the estimates of the primary analysis's chosen model are reported beside the primary analysis's; they show the effect of these changes only.",
-		len(r.Sensitivity), strings.Join(each, "; "), how)
+	return fmt.Sprintf("The plan fixed %s in advance, each the whole analysis repeated with its stated changes to the plan, on the same data, with the same candidate models and decision rules: %s.%s For each, the model the rules chose and the estimates of the primary analysis's chosen model are reported beside the primary analysis's; they show the effect of these changes only.",
+		sensitivityCount(len(r.Sensitivity)), strings.Join(each, "; "), how)
+}
+
+// sensitivityCount is "1 sensitivity analysis" or "N sensitivity analyses".
+func sensitivityCount(n int) string {
+	if n == 1 {
+		return "1 sensitivity analysis"
+	}
+	return fmt.Sprintf("%d sensitivity analyses", n)
 }
 
 // sensitivityMethodsHow says, for the Methods draft, how each sensitivity
