@@ -27,7 +27,7 @@ func TestCausationSentence(t *testing.T) {
 		"The other predictors (`age`) were not assigned by chance",
 		"holds only if they were measured before the assignment",
 		// Adjusted slopes are conditional effects, not the population's.
-		"Its slopes and odds ratios are effects given those predictors: such effects do not collapse, so the assignment's effect on the same scale averaged over the whole population is usually nearer 0 (an odds ratio nearer 1)",
+		"Its slopes (on the scale of the model's link: log odds under the logit link) are effects given those predictors: such effects do not collapse, so the assignment's effect on the same scale averaged over the whole population is usually nearer 0 (under the logit link, an odds ratio nearer 1)",
 	} {
 		if !strings.Contains(s, want) {
 			t.Errorf("lacks %q: %s", want, s)

@@ -474,7 +474,7 @@ func conditionalWords(several bool) string {
 	if several {
 		its, effect = "Their", "each assignment's effect"
 	}
-	return its + " slopes and odds ratios are effects given those predictors: such effects do not collapse, so " + effect + " on the same scale averaged over the whole population is usually nearer 0 (an odds ratio nearer 1), even though the assignment was made by chance; the average marginal effects, where reported, are effects on each category's probability averaged over the rows used."
+	return its + " slopes (on the scale of the model's link: log odds under the logit link) are effects given those predictors: such effects do not collapse, so " + effect + " on the same scale averaged over the whole population is usually nearer 0 (under the logit link, an odds ratio nearer 1), even though the assignment was made by chance; the average marginal effects, where reported, are effects on each category's probability averaged over the rows used."
 }
 
 // interactsWithChance reports whether an interaction of the plan joins a
