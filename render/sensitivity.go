@@ -275,14 +275,14 @@ func sensitivityRows(sr *runner.SensitivityResult, sor *runner.OutcomeResult) st
 	} else if p.Data.Missing == plan.MissingImpute {
 		s += " No value of the columns it uses is missing: nothing was imputed, and the data were analysed as they are."
 	}
-	if col := p.Data.Cluster; col != "" && sr.Result.Analysis != nil && sr.Result.Analysis.Errors.Covariance == fit.Clustered {
-		g := runner.ClusterCount(sor.Data)
+	if ce, ok := analysisClusters(sr, sor); ok {
+		col, g := ce.column, ce.g
 		kind := "the cluster-robust sandwich"
-		if sr.Result.Analysis.Errors.Jackknife() {
+		if ce.jackknife {
 			kind = "the delete-one-cluster jackknife"
 		}
 		ref := fmt.Sprintf("intervals on t with G-1 = %d degrees of freedom", g-1)
-		if sor.Imputed != nil {
+		if ce.pooled {
 			ref = fmt.Sprintf("pooled with G-1 = %d complete-data degrees of freedom", g-1)
 		}
 		s += fmt.Sprintf(" Standard errors by %s over the %d clusters of %s in the rows used, %s.", kind, g, mdCode(col), ref)
@@ -291,6 +291,27 @@ func sensitivityRows(sr *runner.SensitivityResult, sor *runner.OutcomeResult) st
 		}
 	}
 	return s
+}
+
+// clusterErrors is how a sensitivity analysis's errors of one outcome
+// were clustered: the column, the clusters G of the rows used, the
+// delete-one-cluster jackknife or the sandwich, pooled over imputed sets.
+type clusterErrors struct {
+	column            string
+	g                 int
+	jackknife, pooled bool
+}
+
+// analysisClusters is the one reading of an analysis's clustered errors
+// for its report section and its Methods sentence; false when its errors
+// are not clustered.
+func analysisClusters(sr *runner.SensitivityResult, sor *runner.OutcomeResult) (clusterErrors, bool) {
+	an := sr.Result.Analysis
+	col := sr.Result.Plan.Data.Cluster
+	if col == "" || an == nil || an.Errors.Covariance != fit.Clustered {
+		return clusterErrors{}, false
+	}
+	return clusterErrors{column: col, g: runner.ClusterCount(sor.Data), jackknife: an.Errors.Jackknife(), pooled: sor.Imputed != nil}, true
 }
 
 // sensitivitySummary is the summary's line on the sensitivity analyses
@@ -390,17 +411,16 @@ func sensitivityMethodsHow(r *runner.Result) []string {
 				}
 				parts = append(parts, fmt.Sprintf("the %d rows (%s of %d) with a missing value were multiply imputed by chained equations (%d sets, %d iterations each; %s; every model given the outcome and the other columns used) and the fits pooled by Rubin's rules", ch.RowsIncomplete, sharePct(ch.RowsIncomplete, im.Rows), im.Rows, ch.Sets, ch.Iterations, strings.Join(models, ", ")))
 			}
-			if col := sr.Result.Plan.Data.Cluster; col != "" && sr.Result.Analysis.Errors.Covariance == fit.Clustered {
-				g := runner.ClusterCount(sor.Data)
+			if ce, ok := analysisClusters(sr, sor); ok {
 				kind := "cluster-robust"
-				if sr.Result.Analysis.Errors.Jackknife() {
+				if ce.jackknife {
 					kind = "the delete-one-cluster jackknife's"
 				}
-				ref := fmt.Sprintf("with t on %d degrees of freedom", g-1)
-				if sor.Imputed != nil {
-					ref = fmt.Sprintf("pooled with %d complete-data degrees of freedom", g-1)
+				ref := fmt.Sprintf("with t on %d degrees of freedom", ce.g-1)
+				if ce.pooled {
+					ref = fmt.Sprintf("pooled with %d complete-data degrees of freedom", ce.g-1)
 				}
-				parts = append(parts, fmt.Sprintf("standard errors were %s over the %d clusters of %s, %s", kind, g, mdCode(col), ref))
+				parts = append(parts, fmt.Sprintf("standard errors were %s over the %d clusters of %s, %s", kind, ce.g, mdCode(ce.column), ref))
 			}
 			if len(parts) == 0 {
 				continue
