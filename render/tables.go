@@ -189,10 +189,18 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		}
 		row := []string{f.ID, f.Verdict}
 		if f.Result == nil {
-			rows = append(rows, append(row, "not fitted", "", "", "", "", "", "", "", "", "", "", "", "", ""))
+			row = append(row, "not fitted", "", "", "", "", "")
+			rows = append(rows, append(row, make([]string, 5+len(lrHead))...))
 			continue
 		}
 		res := f.Result
+		if !res.MaximumKnown() {
+			// No finite maximum: no log-likelihood, criteria or
+			// predictions to count, as the report's table of models says.
+			row = append(row, string(res.Status), "", strconv.Itoa(res.NParams), "", "", "")
+			rows = append(rows, append(row, make([]string, 5+len(lrHead))...))
+			continue
+		}
 		row = append(row, string(res.Status), csvNum(res.LogLik), strconv.Itoa(res.NParams), csvNum(res.AIC), csvNum(res.BIC), strconv.Itoa(res.NegativeRows))
 		if ov := or.OverallOf(f.ID); ov != nil {
 			lr := make([]string, len(lrHead))

@@ -3,6 +3,7 @@ package render
 import (
 	"bytes"
 	"encoding/csv"
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -313,5 +314,62 @@ func TestMarkColumnsCentredAndNarrow(t *testing.T) {
 	}
 	if !strings.Contains(h, `td:not([style*="right"]):not([style*="center"]){white-space:normal;min-width:8em`) {
 		t.Errorf("the 8em minimum width of text cells also applies to centred mark cells")
+	}
+}
+
+// TestModelsCSVNoMaximumNoCriteria: a candidate whose likelihood has no
+// finite maximum (separation) has no log-likelihood, AIC, BIC or count of
+// rows with negative probabilities in table-models, as in the report's
+// table of models; they read 0 before, which looked like values. Every row
+// is as wide as the header.
+func TestModelsCSVNoMaximumNoCriteria(t *testing.T) {
+	dir := t.TempDir()
+	var b strings.Builder
+	b.WriteString("y,x,z\n")
+	for i := range 60 {
+		x := i % 2
+		y := 1 + i%3
+		if x == 1 && y == 1 {
+			y = 2 // x = 1 never in the lowest category: separation at the first boundary
+		}
+		fmt.Fprintf(&b, "%d,%d,%d\n", y, x, (i*7)%5)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "sep.csv"), []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	src := `version: 1
+title: separated
+data: {file: ` + filepath.Join(dir, "sep.csv") + `}
+outcomes: [{column: y, categories: [1, 2, 3]}]
+predictors: [x, z]
+models: {approaches: [cumulative], effects: [parallel, nonparallel]}
+tests: {parallel_lines: []}
+rules:
+  - reject_unconverged: true
+  - choose: {by: bic}
+`
+	files := renderSource(t, t.TempDir(), src, 1)
+	recs, err := csv.NewReader(bytes.NewReader(files["table-models-y.csv"])).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	col := map[string]int{}
+	for i, h := range recs[0] {
+		col[h] = i
+	}
+	failed := 0
+	for _, r := range recs[1:] {
+		if r[col["status"]] != "no_finite_maximum" {
+			continue
+		}
+		failed++
+		for _, h := range []string{"loglik", "aic", "bic", "rows_negative_probability"} {
+			if r[col[h]] != "" {
+				t.Errorf("%s: %s %q, want empty (no finite maximum)", r[0], h, r[col[h]])
+			}
+		}
+	}
+	if failed == 0 {
+		t.Fatalf("no candidate without a finite maximum:\n%s", files["table-models-y.csv"])
 	}
 }
