@@ -99,6 +99,10 @@ func (d *Data) Centred(shift []float64) (*Data, error) {
 // arrays shared).
 func (c *centring) data(d *Data) *Data {
 	cd := *d
+	cd.uncentred = d
+	if d.uncentred != nil {
+		cd.uncentred = d.uncentred
+	}
 	w := d.width()
 	cd.X = make([]float64, len(d.X))
 	for i := 0; i < len(d.X); i += w {

@@ -1281,6 +1281,9 @@ func (s *Separation) nameDirection(ly *layout, vec []float64, predictors, catego
 // predictor (one whose effect is parallel, say) is no part of this
 // model's separation, and naming it would mislead.
 func (s *Separation) addEvidence(d *Data) {
+	if d.uncentred != nil {
+		d = d.uncentred // the values as in the data, not less a shift
+	}
 	lv := d.categories()
 	K := len(d.Predictors)
 	named := map[string]bool{}

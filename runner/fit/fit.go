@@ -18,6 +18,10 @@ type Data struct {
 	// ind, when set, makes the last ind.count predictors 0/1 columns that
 	// X does not hold: indicators of each row's group (see indicators).
 	ind *indicators
+	// uncentred, when set, is the data these were centred from (see
+	// centring.data): facts told to the user, such as the values behind a
+	// separation, read its values, the data's own.
+	uncentred *Data
 }
 
 // indicators are 0/1 columns held as one group number per row: with w

@@ -246,3 +246,32 @@ func TestRecessionAgainstLPSolve(t *testing.T) {
 		t.Errorf("stage nonparallel probit of tinyStudy(42): status %s, log-likelihood %.9f; R glm %.9f", r.Status, r.LogLik, want)
 	}
 }
+
+// TestSeparationEvidenceInDataUnits: the sparse level of
+// TestSeparationEvidenceSparseLevel with h coded 1000 and 1001 instead of
+// 0 and 1 (the same model, h's slope and separation unchanged: the
+// cutpoints take up the shift). h is far from zero for its spread, so the
+// fit runs on h less its mean; the message names the value the data hold,
+// 1001, not the centred one (about 0.74), which no row has.
+func TestSeparationEvidenceInDataUnits(t *testing.T) {
+	d := &Data{J: 3, Predictors: []string{"x", "h"}}
+	rows := [][3]float64{
+		{1, -0.8, 0}, {2, 0.3, 0}, {3, 1.1, 0}, {1, -1.4, 0}, {2, -0.2, 0}, {3, 0.9, 0}, {2, 0.4, 0},
+		{1, 0.2, 0}, {3, -0.5, 0}, {2, -0.9, 0}, {1, 0.6, 0}, {3, 0.1, 0}, {2, 1.3, 0}, {1, -0.3, 0},
+		{3, -1.1, 1}, {3, 0.5, 1}, {3, -0.4, 1}, {3, 0.8, 1}, {3, -0.7, 1},
+	}
+	for _, r := range rows {
+		d.Y = append(d.Y, int(r[0])-1)
+		d.X = append(d.X, r[1], 1000+r[2])
+	}
+	r, err := Fit(d, Model{Comparison: Cumulative, Link: Logit, Effects: allEffects(2, Parallel)}, Options{Workers: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.Status != StatusNoFiniteMaximum {
+		t.Fatalf("status %s (%s)", r.Status, r.Message)
+	}
+	if !strings.Contains(r.Message, `every row with h = 1001 is in category "3"`) {
+		t.Errorf("message %q, want the value of h in the data (1001)", r.Message)
+	}
+}
