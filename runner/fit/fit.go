@@ -624,6 +624,12 @@ func marginalCutpoints(d *Data, m Model) []float64 {
 		}
 		pr = math.Min(math.Max(pr, 1e-6), 1-1e-6)
 		tau[j] = m.Link.Quantile(pr) + shift
+		if m.Comparison == Cumulative && j > 0 && tau[j] <= tau[j-1] {
+			// Proportions beyond the bounds above (a category or two
+			// weighing less than 1e-6 of the whole): cutpoints one apart,
+			// so that no category starts with a zero probability.
+			tau[j] = tau[j-1] + 1
+		}
 	}
 	return tau
 }

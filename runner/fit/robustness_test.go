@@ -611,3 +611,58 @@ func TestRobustnessSeparationIsFound(t *testing.T) {
 		}
 	}
 }
+
+// Two categories each weighing less than 1e-6 of the whole (a frequency
+// weight of 1e8 in one row, or in the top category): the marginal
+// cutpoints the fit starts from were clamped to the same value, so the
+// category between them started with probability 0 and every cumulative
+// fit ended with "no valid starting point". The thresholds-only model is
+// saturated for the margins, so its maximum is known in closed form:
+// tau_j = log(S_j / (S - S_j)), S_j the weight of categories 1..j and S
+// the total (the definition of the cumulative logit, exact in float64 to
+// rounding). With a predictor every link must converge too.
+func TestStartWithCategoriesBelowOneInAMillion(t *testing.T) {
+	for _, heavy := range []int{0, 2} {
+		d := &Data{J: 3}
+		x := []float64{}
+		for i := range 40 {
+			d.Y = append(d.Y, i%3)
+			d.Weights = append(d.Weights, 1)
+			x = append(x, float64(i%7)-3+0.5*float64(i%3))
+		}
+		d.Y = append(d.Y, heavy)
+		d.Weights = append(d.Weights, 1e8)
+		x = append(x, 0.25)
+		S, cum := 0.0, make([]float64, 3)
+		for i, y := range d.Y {
+			S += d.Weights[i]
+			for j := y; j < 3; j++ {
+				cum[j] += d.Weights[i]
+			}
+		}
+		r, err := Fit(d, Model{Comparison: Cumulative, Link: Logit}, Options{Workers: 1})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !r.OK() {
+			t.Fatalf("heavy category %d, thresholds only: %s: %s", heavy+1, r.Status, r.Message)
+		}
+		for j := range 2 {
+			want := math.Log(cum[j] / (S - cum[j]))
+			if got := r.Estimates[j]; math.Abs(got-want) > 1e-7*math.Max(1, math.Abs(want)) {
+				t.Errorf("heavy category %d: tau[%d] = %.12g, want %.12g", heavy+1, j+1, got, want)
+			}
+		}
+		d.X, d.Predictors = x, []string{"x"}
+		for _, l := range []Link{Logit, Probit, Cloglog, Loglog} {
+			m := Model{Comparison: Cumulative, Link: l, Effects: []Effect{Parallel}}
+			r, err := Fit(d, m, Options{Workers: 1})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !r.OK() {
+				t.Errorf("heavy category %d, %s: %s: %s", heavy+1, m.Name(), r.Status, r.Message)
+			}
+		}
+	}
+}
