@@ -2043,6 +2043,31 @@ func catalogue(dir string) (items []badInput) {
 		{id: "W4", name: "every weight zero", args: []string{"run"},
 			plan: edit("file: d.csv", "file: allzero.csv\n  weights: w"), code: 1,
 			want: []string{`allzero.csv: all 3 data rows were dropped for missing values or zero weight (w = 0: 3)`}},
+		{id: "W30", name: "one weight that dwarfs the others together (1e15 among 119 weights of 1)", args: []string{"run"},
+			setup: func(t *testing.T, dir, id string) {
+				withColumns(t, dir, "dwarf.csv", "wd,w8", func(i int, _ []string) string {
+					if i == 3 {
+						return "1e15,1e8"
+					}
+					return "1,1"
+				})
+			},
+			plan: edit("file: d.csv", "file: dwarf.csv\n  weights: wd"), code: 1,
+			want: []string{`ordplan: dwarf.csv:5: column "wd": weight 1e+15 dwarfs the others: the other 119 rows used weigh 119 together, 1.2e-13 of the total, below the 1.5e-8 (the square root of float64's precision) a fit needs to tell their part from the rounding of this row's, so any fit of these data would be numerically meaningless (and in effect a fit of this one row); check the column (a misplaced decimal mark, a total or a population size in place of a weight)`},
+			check: func(t *testing.T, dir, out, errs string) {
+				file := filepath.Join(dir, "dwarf.csv")
+				want := `dwarf.csv:5: column "wd": weight 1e+15 dwarfs the others`
+				for _, kind := range []string{"frequency", "sampling"} {
+					if _, e, code := runCLI(fitArgs(file, "--predictors", "a,b", "--weights", "wd", "--weight-kind", kind)...); code != 1 || !strings.Contains(e, want) {
+						t.Errorf("fit with %s weights: exit %d\n%s", kind, code, e)
+					}
+				}
+				// A weight of 1e8 among them leaves the others 1.2e-6 of the
+				// total: fitted (it ended with "no valid starting point").
+				if o, e, code := runCLI(fitArgs(file, "--predictors", "a,b", "--weights", "w8")...); code != 0 || !strings.Contains(o, "Status           ok: converged") {
+					t.Errorf("fit with a weight of 1e8: exit %d\n%s%s", code, o, e)
+				}
+			}},
 
 		// Output folders.
 		{id: "O1", name: "symlink planted in the output folder", args: []string{"run"}, plan: goodPlan, code: 1,

@@ -110,6 +110,9 @@ func (r *reader) finish(t *rowTally, d *Dataset) (*Dataset, error) {
 	if err := r.wholeCounts(d); err != nil {
 		return nil, err
 	}
+	if err := r.dwarfingWeight(d); err != nil {
+		return nil, err
+	}
 	if !opt.Part {
 		d.Notes = append(d.Notes, r.pointNotes...)
 		d.PointNotes = r.pointNotes
@@ -185,6 +188,54 @@ func (r *reader) wholeCounts(d *Dataset) error {
 		strconv.FormatFloat(d.Weights[first], 'g', -1, 64), others, strconv.FormatFloat(sum, 'g', 6, 64), d.N)
 	e.Key = "data.weight_kind"
 	return e
+}
+
+// minRestShare is the smallest share of the total weight that the rows
+// other than the heaviest must carry: the square root of float64's
+// relative precision (2^-26, about 1.5e-8). Where one row weighs W and
+// the others R together, a fit brings that row's category probability
+// within about R/W of 1 (or its linear predictor to where it is), and
+// 1 - p is held to about 1e-16 absolute: the others' share of the scores
+// and the information is then known to a relative 1e-16 W/R, and below
+// this share less than half of float64's digits are left for them, fewer
+// than the fits' convergence needs (with one weight of 1e10 among 119
+// weights of 1, the probit and adjacent-category fits no longer reach a
+// maximum; with 1e9 they do, the logit fits to 1e15).
+const minRestShare = 0x1p-26
+
+// dwarfingWeight refuses a weight that dwarfs all the others together
+// (minRestShare), frequency or sampling alike (the share has no scale),
+// on the whole data only (a part read alone is not the data). A weight
+// beyond 1e15 is refused at its cell (weightInRange); this is the one
+// place for a weight within that bound but too large for the rest of the
+// data. Several rows that between them dwarf the others are left to the
+// fits' own checks (collinearity in the weighted design, separation).
+func (r *reader) dwarfingWeight(d *Dataset) error {
+	if r.opt.Part || d.Weights == nil || len(d.Weights) < 2 {
+		return nil
+	}
+	top := 0
+	for i, w := range d.Weights {
+		if w > d.Weights[top] {
+			top = i
+		}
+	}
+	rest := 0.0
+	for i, w := range d.Weights {
+		if i != top {
+			rest += w
+		}
+	}
+	w := d.Weights[top]
+	if rest >= minRestShare*(w+rest) {
+		return nil
+	}
+	others := fmt.Sprintf("the other %d rows used weigh %s together", len(d.Weights)-1, strconv.FormatFloat(rest, 'g', 6, 64))
+	if len(d.Weights) == 2 {
+		others = "the other row used weighs " + strconv.FormatFloat(rest, 'g', 6, 64)
+	}
+	return r.fail(d.Lines[top], r.opt.Weights, "weight %s dwarfs the others: %s, %s of the total, below the 1.5e-8 (the square root of float64's precision) a fit needs to tell their part from the rounding of this row's, so any fit of these data would be numerically meaningless (and in effect a fit of this one row); check the column (a misplaced decimal mark, a total or a population size in place of a weight)",
+		strconv.FormatFloat(w, 'g', -1, 64), others, strconv.FormatFloat(rest/(w+rest), 'g', 2, 64))
 }
 
 // rowTally holds what reading the rows needs and counts: lookups built

@@ -32,3 +32,26 @@ func TestFrequencyWeightsMustBeWhole(t *testing.T) {
 		t.Errorf("whole weights: %v (observations %v)", err, d)
 	}
 }
+
+// A weight that dwarfs the others together is refused at its row when
+// the others weigh less than 2^-26 of the total (minRestShare), exactly:
+// 2^26 - 1 beside a row of weight 1 (and one of 0) leaves it 2^-26 and is read,
+// 2^26 leaves them less and is refused, as frequency or sampling weights,
+// naming the line (the row of weight 0 is dropped, not counted); a part
+// read alone is not judged.
+func TestWeightDwarfingTheOthers(t *testing.T) {
+	for _, top := range []string{"67108863", "67108864"} {
+		in := "y,a,w\n1,0.5,0\n2,1,1\n1,2," + top + "\n"
+		for _, sampling := range []bool{false, true} {
+			opt := Options{Outcome: "y", Predictors: []string{"a"}, Weights: "w", Sampling: sampling}
+			_, err := Read(strings.NewReader(in), "dw.csv", opt)
+			want := `dw.csv:4: column "w": weight 6.7108864e+07 dwarfs the others: the other row used weighs 1, 1.5e-08 of the total, below the 1.5e-8`
+			switch {
+			case top == "67108863" && err != nil:
+				t.Errorf("%s (sampling %v): %v", top, sampling, err)
+			case top == "67108864" && (err == nil || !strings.HasPrefix(err.Error(), want)):
+				t.Errorf("%s (sampling %v): got %v\nwant %s ...", top, sampling, err, want)
+			}
+		}
+	}
+}
