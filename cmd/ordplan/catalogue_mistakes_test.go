@@ -278,6 +278,25 @@ func mistakeItems(dir string) []badInput {
 				}
 			},
 			want: []string{"D50.csv: 12 rows read, 10 used; 2 of 12 rows dropped for missing values (a: 2)"}},
+		{id: "D51", name: "commas that separate thousands in a file read with a decimal comma", args: fitArgs(filepath.Join(dir, "D51.csv"), "--decimal", "comma", "--predictors", "a,b"), code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				if err := os.WriteFile(filepath.Join(dir, id+".csv"), []byte("y,a,b\n1,\"2,449\",1\n2,313,0\n3,\"1,179\",1\n1,87,0\n"), 0o644); err != nil {
+					t.Fatal(err)
+				}
+			},
+			want: []string{"ordplan: D51.csv:2: column \"a\": value \"2,449\" looks like 2449 written with a thousands separator: every value of the column with a comma has three digits after it and would be 1000 or more without it (2 values), and the others are integers below 1000 written without a comma (2, such as \"313\"); a decimal comma reads it as 2.449. Write the numbers without thousands separators (2449); or, if the commas are decimal commas, write the whole numbers with three decimals too (\"313,000\")\n"},
+			check: func(t *testing.T, dir, out, errs string) {
+				// ordplan init proposes the decimal comma the quoted cells
+				// suggest, and says what the commas look like.
+				plan := filepath.Join(dir, "D51.yaml")
+				if _, e, code := runCLI("init", plan, "--data", filepath.Join(dir, "D51.csv"), "--outcome", "y"); code != 0 {
+					t.Fatalf("init: exit %d\n%s", code, e)
+				}
+				b, err := os.ReadFile(plan)
+				if want := "# EDIT: the commas of column a look like thousands separators (2,449 beside 313), which check and run refuse"; err != nil || !strings.Contains(string(b), want) {
+					t.Errorf("init: want %q in\n%s", want, b)
+				}
+			}},
 		{id: "P66", name: "ordplan init into a folder that does not exist", args: []string{"init", filepath.Join(dir, "P66-nodir", "x.yaml"), "--data", filepath.Join(dir, "d.csv")}, code: 1,
 			want:  []string{"ordplan: init: cannot write P66-nodir/x.yaml: the folder P66-nodir does not exist: make it first, or give another path"},
 			check: noFolder("P66-nodir")},

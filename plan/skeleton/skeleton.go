@@ -70,7 +70,7 @@ func KindOf(p data.Profile, haveData bool) Kind {
 			what = "numeric, whole numbers"
 		}
 		if p.ThousandsPoint != "" {
-			miss += "; its points " + thousandsLike(p) + ": see data.decimal"
+			miss += "; its " + thousandsMarks(p) + " " + thousandsLike(p) + ": see data.decimal"
 		}
 		return Kind{Word: "numeric", Describe: fmt.Sprintf("%s from %s to %s%s", what, num(p.Min), num(p.Max), miss)}
 	case !p.Many && p.Distinct <= 12 && p.Distinct >= 3 && scaleLike(p.Values):
@@ -324,6 +324,16 @@ func Write(in Input) ([]byte, error) {
 	return []byte(b.String()), nil
 }
 
+// thousandsMarks names the decimal marks that look like thousands
+// separators in a column (data.Profile.ThousandsPoint): points, or commas
+// in a file read with a decimal comma.
+func thousandsMarks(c data.Profile) string {
+	if strings.Contains(c.ThousandsPoint, ",") {
+		return "commas"
+	}
+	return "points"
+}
+
 // thousandsLike says how a column's points look like thousands
 // separators (data.Profile.ThousandsPoint).
 func thousandsLike(c data.Profile) string {
@@ -492,9 +502,9 @@ func writeDialect(w func(string, ...any), in Input) {
 		for _, c := range in.Columns {
 			switch {
 			case c.ThousandsPoint != "" && c.ThousandsBeside != "":
-				w("  # EDIT: the points of column %s %s, which check and run refuse: write the file's numbers without them", c.Name, thousandsLike(c))
+				w("  # EDIT: the %s of column %s %s, which check and run refuse: write the file's numbers without them", thousandsMarks(c), c.Name, thousandsLike(c))
 			case c.ThousandsPoint != "":
-				w("  # EDIT: the points of column %s %s: if they do, write the file's numbers without them", c.Name, thousandsLike(c))
+				w("  # EDIT: the %s of column %s %s: if they do, write the file's numbers without them", thousandsMarks(c), c.Name, thousandsLike(c))
 			}
 		}
 	}

@@ -130,20 +130,22 @@ func thousands(whole, frac string) bool {
 	return len(frac) == 3 && digits(frac) && len(whole) >= 1 && len(whole) <= 3 && digits(whole) && whole[0] != '0'
 }
 
-// pointEvidence gathers, over the cells of a column read as numbers with
-// a decimal point, the evidence that its points are thousands separators
-// (3.473 written for 3473 beside 313, as files written with a decimal
-// comma do): every cell with a point writes one to three digits, not
-// starting with 0, then the point and three digits (read as thousands,
-// 1,000 or more), and integers without a point, all below 1000, are
-// there too. Any other cell is evidence against, which settles it: a
-// decimal number written otherwise (1.5, 0.375, 1234.5), an integer of
-// 1000 or more written without a separator, an exponent, text. Numbers
-// written with three decimals each way (1.250 beside 2, never 0.375 nor
-// 1.25) would look the same: the check is for files whose delimiter is a
-// semicolon or a tab, as files with a decimal comma have.
+// pointEvidence gathers, over the cells of a column read as numbers,
+// the evidence that its decimal marks are thousands separators (3.473
+// written for 3473 beside 313, as files written with a decimal comma do,
+// or "3,473" beside 313 read with a decimal comma): every cell with the
+// mark writes one to three digits, not starting with 0, then the mark
+// and three digits (read as thousands, 1000 or more), and integers
+// without it, all below 1000, are there too. Any other cell is evidence
+// against, which settles it: a decimal number written otherwise (1.5,
+// 0.375, 1234.5), an integer of 1000 or more written without a
+// separator, an exponent, text. Numbers written with three decimals each
+// way (1.250 beside 2, never 0.375 nor 1.25) would look the same: the
+// check is made where the other mark is not a separator the file can
+// have (Dialect.thousandsMark).
 type pointEvidence struct {
-	example string // the first cell with a point
+	mark    byte   // the decimal mark looked at: '.' or ','
+	example string // the first cell with the mark
 	line    int    // its line
 	integer string // the first integer without a point
 	points  int    // cells with a point that read as thousands
@@ -156,7 +158,7 @@ func (e *pointEvidence) add(cell string, line int) {
 	if e.against {
 		return
 	}
-	i := strings.IndexByte(cell, '.')
+	i := strings.IndexByte(cell, e.mark)
 	if i < 0 {
 		digits := strings.TrimPrefix(strings.TrimPrefix(cell, "-"), "+")
 		if digits == "" || strings.Trim(digits, "0123456789") != "" || len(strings.TrimLeft(digits, "0")) > 3 {
@@ -191,23 +193,51 @@ func (e *pointEvidence) suspect() bool { return !e.against && e.points > 0 }
 // conclusive reports whether the cells added show thousands separators.
 func (e *pointEvidence) conclusive() bool { return !e.against && e.points > 0 && e.small > 0 }
 
+// thousandsMark is the decimal mark whose cells thousandsPoints looks at
+// (0: none): a point in a semicolon- or tab-separated file read with a
+// decimal point (a file written with a decimal comma separates thousands
+// with points), a comma in a file read with a decimal comma (a file
+// written with a decimal point separates thousands with commas, quoted in
+// a comma-separated file). A comma-separated file read with a decimal
+// point is not looked at: a comma in its numbers is refused (number).
+func (d Dialect) thousandsMark() byte {
+	switch {
+	case d.DecimalComma:
+		return ','
+	case d.delim() != ',':
+		return '.'
+	}
+	return 0
+}
+
+// markWord names a decimal mark, '.' or ',', in the plural.
+func markWord(mark byte) string {
+	if mark == ',' {
+		return "commas"
+	}
+	return "points"
+}
+
 // pointSample is the number of data rows thousandsPoints reads before it
 // gives up on a column that shows no sign of thousands separators.
 const pointSample = 1000
 
-// thousandsPoints refuses CSV text whose delimiter is a semicolon or a
-// tab, read with a decimal point, when a column it reads as numbers
-// writes its points as thousands separators (pointEvidence): read as
-// decimal points they would be numbers a thousand times too small, with
+// thousandsPoints refuses CSV text when a column it reads as numbers
+// writes its decimal marks as thousands separators (pointEvidence, of the
+// mark Dialect.thousandsMark names: points in a semicolon or tab file
+// read with a decimal point, commas read with a decimal comma): read as
+// decimal marks they would be numbers a thousand times too small, with
 // no error. It reads the first pointSample rows of the text apart from
 // the rows' path, and the rest only when a column shows the sign there,
 // so that a file without it costs no more than those rows (nothing at
-// all with a comma or a decimal comma). A column whose every value has a
-// point and three digits after it, and no integer beside, may be either:
-// it gets a note (reader.pointNotes), not a refusal.
+// all for a comma-separated file read with a decimal point). A column
+// whose every value has the mark and three digits after it, and no
+// integer beside, may be either: it gets a note (reader.pointNotes), not
+// a refusal.
 func (r *reader) thousandsPoints() error {
 	d := r.opt.Dialect
-	if r.raw == nil || r.head == nil || d.DecimalComma || d.delim() == ',' {
+	mark := d.thousandsMark()
+	if r.raw == nil || r.head == nil || mark == 0 {
 		return nil
 	}
 	var cols []usedCol
@@ -228,6 +258,9 @@ func (r *reader) thousandsPoints() error {
 		return nil
 	}
 	ev := make([]pointEvidence, len(cols))
+	for k := range ev {
+		ev[k].mark = mark
+	}
 	for row := 1; ; row++ {
 		rec, err := cr.Read()
 		if err == io.EOF {
@@ -249,19 +282,24 @@ func (r *reader) thousandsPoints() error {
 			return nil
 		}
 	}
+	word := d.DecimalWord() // point or comma
 	for k, e := range ev {
+		read := e.example // the value it was read as
+		if mark == ',' {
+			read = e.example + " as " + strings.Replace(e.example, ",", ".", 1)
+		}
+		whole := strings.Replace(e.example, string(mark), "", 1)
 		if e.suspect() && e.small == 0 {
-			// Every value has a point and three digits after it: decimals
+			// Every value has the mark and three digits after it: decimals
 			// written with three places, or thousands separated; said, not
 			// refused.
-			r.pointNotes = append(r.pointNotes, fmt.Sprintf("Column %s: every value is written with a point and three digits after it (%d values, such as %s), none otherwise, in a %s-separated file read with a decimal point (data.decimal: point): they were read as decimals (%s); if the points separate thousands (%s), every value was read a thousand times too small: write the numbers without separators. The column's possible range in the plan (dictionary.%s.range) settles it: check and run refuse a value outside it",
-				cols[k].name, e.points, e.example, d.DelimiterWord(), e.example, strings.Replace(e.example, ".", "", 1), cols[k].name))
+			r.pointNotes = append(r.pointNotes, fmt.Sprintf("Column %s: every value is written with a %s and three digits after it (%d values, such as %s), none otherwise, in a %s-separated file read with a decimal %s (data.decimal: %s): they were read as decimals (%s); if the %s separate thousands (%s), every value was read a thousand times too small: write the numbers without separators. The column's possible range in the plan (dictionary.%s.range) settles it: check and run refuse a value outside it",
+				cols[k].name, word, e.points, e.example, d.DelimiterWord(), word, word, read, markWord(mark), whole, cols[k].name))
 			r.pointCols = append(r.pointCols, cols[k].name)
 		}
 		if e.conclusive() {
-			whole := strings.Replace(e.example, ".", "", 1)
-			return r.fail(e.line, cols[k].name, "value %s looks like %s written with a thousands separator: every value of the column with a point has three digits after it and would be 1000 or more without it (%d values), and the others are integers below 1000 written without a point (%d, such as %s); a decimal point reads it as %s. Write the numbers without thousands separators (%s); or, if the points are decimal points, write the whole numbers with three decimals too (%s)",
-				quoteCell(e.example), whole, e.points, e.small, quoteCell(e.integer), e.example, whole, quoteCell(e.integer+".000"))
+			return r.fail(e.line, cols[k].name, "value %s looks like %s written with a thousands separator: every value of the column with a %s has three digits after it and would be 1000 or more without it (%d values), and the others are integers below 1000 written without a %s (%d, such as %s); a decimal %s reads it as %s. Write the numbers without thousands separators (%s); or, if the %s are decimal %s, write the whole numbers with three decimals too (%s)",
+				quoteCell(e.example), whole, word, e.points, word, e.small, quoteCell(e.integer), word, strings.Replace(e.example, ",", ".", 1), whole, markWord(mark), markWord(mark), quoteCell(e.integer+string(mark)+"000"))
 		}
 	}
 	return nil

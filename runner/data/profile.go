@@ -39,11 +39,12 @@ type Profile struct {
 	TopCodes []float64
 	MaxOther float64
 	// ThousandsPoint, of a column read as numbers with a decimal point in
-	// a file whose delimiter is a semicolon or a tab, is a cell whose
-	// point looks like a thousands separator (pointEvidence: 3.473 beside
-	// 313), and ThousandsBeside an integer written without one ("" when
-	// every value has such a point, which three decimals could be too);
-	// "" when the column shows no such sign.
+	// a file whose delimiter is a semicolon or a tab, or with a decimal
+	// comma, is a cell whose decimal mark looks like a thousands separator
+	// (pointEvidence: 3.473 beside 313, "3,473" beside 313), and
+	// ThousandsBeside an integer written without one ("" when every value
+	// has such a mark, which three decimals could be too); "" when the
+	// column shows no such sign.
 	ThousandsPoint, ThousandsBeside string
 	// ZeroFraction, of a column of integers, is a value written with a
 	// zero fraction (2.0, as tools that store integers as floating-point
@@ -130,6 +131,9 @@ func (r *reader) profile() ([]Profile, error) {
 	}
 	out := make([]Profile, len(names))
 	points := make([]pointEvidence, len(names))
+	for i := range points {
+		points[i].mark = d.thousandsMark()
+	}
 	seen := make([]map[string]bool, len(names))
 	all := make([]map[string]struct{}, len(names)) // nil once past MaxCount
 	for i, n := range names {
@@ -237,7 +241,7 @@ func (r *reader) profile() ([]Profile, error) {
 			slices.Sort(p.Codes)
 			slices.Sort(p.TopCodes)
 			p.TopCodes, p.MaxOther = topCodes(p.TopCodes, p.MaxOther)
-			if pe := points[i]; pe.suspect() && !d.DecimalComma && d.delim() != ',' && r.head != nil {
+			if pe := points[i]; pe.suspect() && d.thousandsMark() != 0 && r.head != nil {
 				p.ThousandsPoint, p.ThousandsBeside = pe.example, pe.integer
 			}
 		} else {

@@ -12,9 +12,10 @@ import (
 )
 
 // Points that separate thousands in a semicolon or tab file read with a
-// decimal point are refused; points that are decimals (a digit count
-// other than three, a whole part of 0, a whole number of 1000 or more
-// without a point) are not, nor are files of other dialects.
+// decimal point are refused, and so are commas that do in a file read
+// with a decimal comma; marks that are decimals (a digit count other than
+// three, a whole part of 0, a whole number of 1000 or more without a
+// mark) are not, nor are points in a comma-separated file.
 func TestThousandsPointsRefused(t *testing.T) {
 	semi := Dialect{Delimiter: ';'}
 	opt := func(d Dialect) Options { return Options{Outcome: "y", Predictors: []string{"a"}, Dialect: d} }
@@ -41,6 +42,14 @@ func TestThousandsPointsRefused(t *testing.T) {
 		{"an integer of 1000 or more", rows(";", "1.250", "2", "1250"), semi, ""},
 		{"an exponent", rows(";", "1.250", "2", "1e3"), semi, ""},
 		{"a comma-separated file", rows(",", "3.473", "313", "1.179"), Dialect{}, ""},
+		// Read with a decimal comma, commas that separate thousands (a
+		// spreadsheet's "2,449" in a comma-separated file) read 2.449
+		// beside 313 without a word before.
+		{"commas that separate thousands, read with a decimal comma", rows(",", `"2,449"`, "313", `"1,179"`, "87"), Dialect{DecimalComma: true},
+			`t.csv:2: column "a": value "2,449" looks like 2449 written with a thousands separator: every value of the column with a comma has three digits after it and would be 1000 or more without it (2 values), and the others are integers below 1000 written without a comma (2, such as "313"); a decimal comma reads it as 2.449. Write the numbers without thousands separators (2449); or, if the commas are decimal commas, write the whole numbers with three decimals too ("313,000")`},
+		{"semicolon, decimal comma", rows(";", "3,473", "313", "1,179"), Dialect{Delimiter: ';', DecimalComma: true}, `value "3,473" looks like 3473 written with a thousands separator`},
+		{"decimal commas of two digits", rows(";", "1,250", "2", "1,25"), Dialect{Delimiter: ';', DecimalComma: true}, ""},
+		{"decimal commas below 1", rows(";", "1,250", "2", "0,375"), Dialect{Delimiter: ';', DecimalComma: true}, ""},
 	} {
 		_, err := Read(strings.NewReader(c.text), "t.csv", opt(c.d))
 		switch {
@@ -55,6 +64,10 @@ func TestThousandsPointsRefused(t *testing.T) {
 	d, err := Read(strings.NewReader(rows(";", "1.250", "2.375", "13.125")), "t.csv", opt(semi))
 	if want := "Column a: every value is written with a point and three digits after it (3 values, such as 1.250), none otherwise, in a semicolon-separated file read with a decimal point (data.decimal: point): they were read as decimals (1.250); if the points separate thousands (1250), every value was read a thousand times too small: write the numbers without separators. The column's possible range in the plan (dictionary.a.range) settles it: check and run refuse a value outside it"; err != nil || len(d.Notes) != 1 || d.Notes[0] != want || !slices.Equal(d.PointNotes, d.Notes) {
 		t.Errorf("three decimals everywhere: %v %q", err, d.Notes)
+	}
+	d, err = Read(strings.NewReader(rows(";", "1,250", "2,375", "13,125")), "t.csv", opt(Dialect{Delimiter: ';', DecimalComma: true}))
+	if want := "Column a: every value is written with a comma and three digits after it (3 values, such as 1,250), none otherwise, in a semicolon-separated file read with a decimal comma (data.decimal: comma): they were read as decimals (1,250 as 1.250); if the commas separate thousands (1250), every value was read a thousand times too small: write the numbers without separators. The column's possible range in the plan (dictionary.a.range) settles it: check and run refuse a value outside it"; err != nil || len(d.Notes) != 1 || d.Notes[0] != want {
+		t.Errorf("three decimals everywhere, decimal comma: %v %q", err, d.Notes)
 	}
 	if d, err := Read(strings.NewReader(rows(";", "1.250", "2.375", "13.125", "0.5")), "t.csv", opt(semi)); err != nil || len(d.Notes) != 0 {
 		t.Errorf("three decimals and a half: %v %q", err, d.Notes)
@@ -79,7 +92,8 @@ func TestThousandsPointsRefused(t *testing.T) {
 }
 
 // The project's example and reference data, written with semicolons and
-// read with a decimal point, show no sign of thousands separators.
+// read with a decimal point, or with a decimal comma, show no sign of
+// thousands separators.
 func TestThousandsPointsSpareProjectData(t *testing.T) {
 	var files []string
 	for _, glob := range []string{"../../testdata/reference/*.csv", "../../plans/data/*.csv"} {
@@ -97,15 +111,23 @@ func TestThousandsPointsSpareProjectData(t *testing.T) {
 		if strings.ContainsAny(string(b), ";\"") {
 			t.Fatalf("%s: a semicolon or a quote: rewrite the test", f)
 		}
+		// Written with semicolons and a decimal point, then with a
+		// decimal comma.
 		path := filepath.Join(t.TempDir(), filepath.Base(f))
-		os.WriteFile(path, []byte(strings.ReplaceAll(string(b), ",", ";")), 0o644)
-		ps, err := ProfileFile(path, nil, Dialect{Delimiter: ';'})
-		if err != nil {
-			t.Fatal(err)
-		}
-		for _, p := range ps {
-			if p.ThousandsPoint != "" {
-				t.Errorf("%s: column %s: %s", f, p.Name, p.ThousandsPoint)
+		semi := strings.ReplaceAll(string(b), ",", ";")
+		for _, w := range []struct {
+			text string
+			d    Dialect
+		}{{semi, Dialect{Delimiter: ';'}}, {strings.ReplaceAll(semi, ".", ","), Dialect{Delimiter: ';', DecimalComma: true}}} {
+			os.WriteFile(path, []byte(w.text), 0o644)
+			ps, err := ProfileFile(path, nil, w.d)
+			if err != nil {
+				t.Fatal(err)
+			}
+			for _, p := range ps {
+				if p.ThousandsPoint != "" {
+					t.Errorf("%s (decimal %s): column %s: %s", f, w.d.DecimalWord(), p.Name, p.ThousandsPoint)
+				}
 			}
 		}
 	}
