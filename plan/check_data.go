@@ -207,12 +207,10 @@ func openReason(err error) string {
 }
 
 // columnHint suggests a column that differs only in letter case or
-// separators, or else lists the columns of the file.
+// separators (data.NearColumn), or else lists the columns of the file.
 func columnHint(col string, header []string) string {
-	for _, h := range header {
-		if looseEqual(h, col, "-. ") {
-			return `; did you mean "` + clip(h) + `"?`
-		}
+	if h, ok := data.NearColumn(col, header); ok {
+		return `; did you mean "` + clip(h) + `"?`
 	}
 	const most = 12
 	shown := header

@@ -3,8 +3,6 @@ package plan
 import (
 	"fmt"
 	"strings"
-	"unicode"
-	"unicode/utf8"
 
 	"ordplan/internal/words"
 	"ordplan/runner/fit"
@@ -119,25 +117,4 @@ func typedWords[T interface {
 		out = append(out, v)
 	}
 	*dst = out
-}
-
-// looseEqual reports whether a and b are equal ignoring letter case and
-// with each character of seps read as '_'. It allocates nothing, so that
-// comparing a name with a long header costs no memory.
-func looseEqual(a, b, seps string) bool {
-	fold := func(r rune) rune {
-		if strings.ContainsRune(seps, r) {
-			return '_'
-		}
-		return unicode.ToLower(r)
-	}
-	for a != "" && b != "" {
-		ra, na := utf8.DecodeRuneInString(a)
-		rb, nb := utf8.DecodeRuneInString(b)
-		if fold(ra) != fold(rb) {
-			return false
-		}
-		a, b = a[na:], b[nb:]
-	}
-	return a == "" && b == ""
 }

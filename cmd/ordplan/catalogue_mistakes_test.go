@@ -60,6 +60,18 @@ func mistakeItems(dir string) []badInput {
 			want: []string{`ordplan: predictor "a" is listed twice as nonparallel; list it once`}},
 		{id: "C12", name: "ordplan fit --constrained with an empty group name", args: fitArgs(filepath.Join(dir, "d.csv"), "--predictors", "a,b", "--constrained", ":a"), code: 1,
 			want: []string{`ordplan: --constrained: group 1 of 1 in ":a" has an empty name before the colon: write NAME:a, or leave the colon out for a group without a name`}},
+		{id: "C13", name: "ordplan fit --cluster naming a column in another letter case", args: fitArgs(filepath.Join(dir, "d.csv"), "--predictors", "a,b", "--covariance", "clustered", "--cluster", "C"), code: 1,
+			want: []string{`ordplan: d.csv: column "C": cluster column not found in the header; did you mean "c"?` + "\n"},
+			check: func(t *testing.T, dir, out, errs string) {
+				for _, c := range []struct{ flag, col, want string }{
+					{"--offset", "Big", `column "Big": offset column not found in the header; did you mean "big"?`},
+					{"--weights", "TI-NY", `column "TI-NY": weights column not found in the header; available columns: "y", "a", "b", "c", "d", "big", "tiny"`},
+				} {
+					if _, e, code := runCLI(fitArgs(filepath.Join(dir, "d.csv"), "--predictors", "a,b", c.flag, c.col)...); code != 1 || !strings.Contains(e, c.want) {
+						t.Errorf("%s %s: exit %d\n%s", c.flag, c.col, code, e)
+					}
+				}
+			}},
 		{id: "O14", name: "a flag given twice", args: []string{"power", "--n", "100", "--out", filepath.Join(dir, "O14-power"), "--n", "200"}, plan: edit() + assumed("{a: 0.2}", ""), code: 2,
 			want:  []string{`ordplan power: --n is given twice ("100", then "200"); give each flag once (several items go in one value, comma separated: --n 100,200)`},
 			check: noFolder("O14-power")},

@@ -27,7 +27,7 @@ func ColumnCells(path string, d Dialect, column string, each func(line int, cell
 	}
 	col, ok := where[column]
 	if !ok {
-		return r.fail(0, column, "column not found in the header; available columns: %s", quoteList(names))
+		return r.fail(0, column, "%s", notInHeader("", column, names))
 	}
 	for {
 		rec, err := r.cr.Read()

@@ -43,6 +43,8 @@ func TestReadErrors(t *testing.T) {
 			`t.csv: column "y": outcome column not found in the header; available columns: "z", "a", "b"`},
 		{"missing weights column", "y,a,b\n1,2,3\n", Options{Outcome: "y", Weights: "w"}, 0, "w",
 			`t.csv: column "w": weights column not found in the header; available columns: "y", "a", "b"`},
+		{"cluster column named in another letter case", "y,a,b,site-id\n1,2,3,4\n", Options{Outcome: "y", Cluster: "Site_ID"}, 0, "Site_ID",
+			`t.csv: column "Site_ID": cluster column not found in the header; did you mean "site-id"?`},
 		{"ragged short row", "y,a,b\n1,2,3\n2,3\n", opts, 3, "",
 			`t.csv:3: row has 2 fields but the header has 3`},
 		{"ragged long row", "y,a,b\n1,2,3\n2,3,4\n1,2,3,4\n", opts, 4, "",

@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"strconv"
 	"strings"
+	"unicode"
+	"unicode/utf8"
 )
 
 // Error reports a problem with an input file. It renders on one line as
@@ -69,4 +71,53 @@ func quoteList(names []string) string {
 		q = append(q, fmt.Sprintf("... (%d in all)", len(names)))
 	}
 	return strings.Join(q, ", ")
+}
+
+// NearColumn gives the first of header that differs from col only in
+// letter case or in its separators ('-', '.', ' ' and '_' read alike):
+// the one decision of which column a name missing from a header meant,
+// for the plan's checks (the plan's keys) and the reader's messages (the
+// flags of ordplan fit). It allocates nothing, so that comparing a name
+// with a long header costs no memory.
+func NearColumn(col string, header []string) (string, bool) {
+	for _, h := range header {
+		if looseEqual(h, col, "-. ") {
+			return h, true
+		}
+	}
+	return "", false
+}
+
+// notInHeader is the message of a column (of the role named, "" for
+// none) missing from the header names: the column it may mean, or the
+// columns there are.
+func notInHeader(role, col string, names []string) string {
+	msg := "column not found in the header"
+	if role != "" {
+		msg = role + " " + msg
+	}
+	if h, ok := NearColumn(col, names); ok {
+		return msg + "; did you mean " + quoteCell(h) + "?"
+	}
+	return msg + "; available columns: " + quoteList(names)
+}
+
+// looseEqual reports whether a and b are equal ignoring letter case and
+// with each character of seps read as '_'.
+func looseEqual(a, b, seps string) bool {
+	fold := func(r rune) rune {
+		if strings.ContainsRune(seps, r) {
+			return '_'
+		}
+		return unicode.ToLower(r)
+	}
+	for a != "" && b != "" {
+		ra, na := utf8.DecodeRuneInString(a)
+		rb, nb := utf8.DecodeRuneInString(b)
+		if fold(ra) != fold(rb) {
+			return false
+		}
+		a, b = a[na:], b[nb:]
+	}
+	return a == "" && b == ""
 }

@@ -91,7 +91,7 @@ func LoadNewRows(path string, predictors []string, levels map[string][]string, o
 	for j, c := range cols {
 		i, ok := index[c]
 		if !ok {
-			return nil, &Error{File: path, Column: c, Msg: "column not found in the header; available columns: " + quoteList(head)}
+			return nil, &Error{File: path, Column: c, Msg: notInHeader("", c, head)}
 		}
 		pos[j] = i
 		if _, cat := levels[c]; !cat || j >= len(predictors) {

@@ -202,8 +202,7 @@ func (r *reader) header(cols []usedCol) error {
 		if !ok {
 			// A header read whole as one name is most often a file in
 			// another dialect than the one asked for: say which.
-			e := r.dialectHint(r.fail(0, cols[i].name, "%s column not found in the header; available columns: %s",
-				cols[i].role, quoteList(names)))
+			e := r.dialectHint(r.fail(0, cols[i].name, "%s", notInHeader(cols[i].role.String(), cols[i].name, names)))
 			if sr, ok := r.cr.(*sheetRecords); ok {
 				e.Msg += fmt.Sprintf("; the header was read from row %d of the sheet %s: if the column names are in another row, give it with data.header_row (ordplan fit and ordplan init: --header-row)", sr.headerLine, quoteCell(sr.read.Name))
 			}
