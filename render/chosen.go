@@ -50,6 +50,9 @@ func writeChosen(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			d.p("Standard errors from the cluster-robust sandwich over %d clusters: each p-value and interval refers to t on G-1 = %s degrees of freedom, not to the normal (the covariance is estimated from the %d clusters' sums).", res.Clusters, numfmt.Num(res.RefDF), res.Clusters)
 		}
 	}
+	if n := res.NotEstimableNote(mdCode); n != "" {
+		d.p("**Warning:** in %s, %s.", or.Chosen.ID, n)
+	}
 	if why := res.SingularClustered(); why != "" {
 		d.p("**Warning:** %s, %s: some combinations of its estimates have no estimated variance, no joint test of G or more restrictions can be made from it, and its errors, intervals and tests rest on few clusters.", or.Chosen.ID, why)
 	}

@@ -106,6 +106,9 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 	if stat == "t" {
 		fmt.Fprintf(w, "\n%s\n", tNote(r, "estimate"))
 	}
+	if n := r.NotEstimableNote(func(s string) string { return s }); n != "" {
+		fmt.Fprintf(w, "\nn/a: %s.\n", n)
+	}
 	fmt.Fprintf(w, "\nA positive slope moves the outcome towards higher categories. L_m = tau[m] - x'b_m.\n")
 	if r.Status == fit.StatusNegativeProbs {
 		fmt.Fprintf(w, "Warning: %s.\n", r.Message)

@@ -53,6 +53,9 @@ type FitRecord struct {
 	// Collinear: the terms whose slopes' variance inflation reaches
 	// fit.InflationLimit (near-collinearity).
 	Collinear []fit.Inflation `json:"collinear,omitempty"`
+	// NotEstimable: the parameters whose cluster-robust standard errors
+	// cannot be estimated (null in std_errors), with the reason.
+	NotEstimable *fit.NotEstimable `json:"not_estimable_clustered,omitempty"`
 }
 
 // CovarianceJSON is the covariance matrix of a fit's estimates, with the
@@ -96,7 +99,7 @@ func Record(r *fit.Result) FitRecord {
 		Status: string(r.Status), Message: r.Message, Converged: r.Converged, Iterations: r.Iterations,
 		MaxAbsScore: num(r.MaxAbsScore), NParams: r.NParams, NObs: r.NObs,
 		NegativeRows: r.NegativeRows, Condition: num(r.Condition), Separation: r.Separation, Flat: r.Flat,
-		StartsAgree: r.StartsAgreeing, PhiNotes: r.PhiNotes, NearZeroScale: r.NearZeroScale, Collinear: r.Collinear, Centred: r.Centred,
+		StartsAgree: r.StartsAgreeing, PhiNotes: r.PhiNotes, NearZeroScale: r.NearZeroScale, Collinear: r.Collinear, NotEstimable: r.NotEstimable, Centred: r.Centred,
 	}
 	for _, s := range r.Starts {
 		rec.Starts = append(rec.Starts, StartJSON{Label: s.Label, LogLik: num(s.LogLik), ReachedBest: s.ReachedBest, Refitted: s.Refitted, Iterations: s.Iterations, Reason: s.Reason})

@@ -287,7 +287,7 @@ func poolJobs(a *Analysis, sets []*data.Dataset, terms []fit.Term, jobs []*FitEn
 				bad, badSet = f, k+1
 				break
 			}
-			sets[k] = impute.Set{Est: f.Result.Estimates, Cov: f.Result.Cov}
+			sets[k] = impute.Set{Est: f.Result.Estimates, Cov: f.Result.CovarianceAsComputed()}
 		}
 		if bad != nil {
 			if bad.Result != nil {
@@ -350,7 +350,7 @@ func (run *ImputedRun) remote(ex Executor, grids []gridPart, outcome string) err
 func poolResults(rs []*fit.Result, obs float64, data []*fit.Data) (*fit.Result, *impute.Pooled, error) {
 	sets := make([]impute.Set, len(rs))
 	for k, r := range rs {
-		sets[k] = impute.Set{Est: r.Estimates, Cov: r.Cov}
+		sets[k] = impute.Set{Est: r.Estimates, Cov: r.CovarianceAsComputed()}
 	}
 	first := rs[0]
 	for k, r := range rs {
@@ -364,6 +364,18 @@ func poolResults(rs []*fit.Result, obs float64, data []*fit.Data) (*fit.Result, 
 	}
 	r := *first
 	r.Estimates, r.Cov, r.StdErrors, r.DF = pl.Estimate, pl.Total, pl.SE, pl.DF
+	r.PoolNotEstimable(rs)
+	if r.NotEstimable != nil {
+		// The pooling's own figures of a parameter the cluster-robust
+		// covariance cannot estimate are not given either (the matrices
+		// stay as computed for the tests that do not load on it; the
+		// tables of the pooling read PooledVariances).
+		for j := range r.StdErrors {
+			if math.IsNaN(r.StdErrors[j]) {
+				pl.SE[j], pl.RIV[j], pl.Lambda[j], pl.FMI[j] = math.NaN(), math.NaN(), math.NaN(), math.NaN()
+			}
+		}
+	}
 	m := float64(len(rs))
 	r.LogLik, r.AIC, r.BIC = 0, 0, 0
 	for _, rk := range rs {
@@ -1098,4 +1110,15 @@ func subsetMembership(a *Analysis, r Reading, sources []setSource, paths []strin
 	}
 	return fmt.Errorf("%s: data.imputed: the subset condition %s (%s) reads column %q, which the imputed sets fill in: %s%s. A subset on an imputed column would analyse different people in different sets (and others than the data file's rows under the subset), which pooling cannot combine. Apply the subset to observed values before imputing: leave out the rows outside it, and those whose %s is missing, and make the imputed sets again from the rows that remain (as data.missing: impute does, dropping rows whose membership of the subset is unknown), or subset on a column observed in every row",
 		a.Source, cond.String(), key, cond.Column, what, more, cond.Column)
+}
+
+// PooledVariances are the within-set, between-set and total variances of
+// parameter j of a pooled fit, NaN for a parameter whose pooled standard
+// error is not given (fit.NotEstimable under cluster-robust errors).
+func PooledVariances(pl *impute.Pooled, j int) (within, between, total float64) {
+	if math.IsNaN(pl.SE[j]) {
+		return math.NaN(), math.NaN(), math.NaN()
+	}
+	k := j*pl.P + j
+	return pl.Within[k], pl.Between[k], pl.Total[k]
 }

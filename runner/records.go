@@ -209,8 +209,8 @@ func imputationRecord(or *OutcomeResult, sampling bool) *ImputationRecord {
 		pl := f.Pooled
 		pf := PoolingFit{Model: f.ID}
 		for j, n := range f.Result.ParamNames {
-			pp := PoolingParam{Name: n, Estimate: pl.Estimate[j], Within: pl.Within[j*pl.P+j], Between: pl.Between[j*pl.P+j],
-				Total: pl.Total[j*pl.P+j], RIV: pl.RIV[j], FMI: pl.FMI[j]}
+			w, b, t := PooledVariances(pl, j)
+			pp := PoolingParam{Name: n, Estimate: pl.Estimate[j], Within: w, Between: b, Total: t, RIV: pl.RIV[j], FMI: pl.FMI[j]}
 			pp.DF = finiteOrNull(pl.DF[j])
 			pf.Parameters = append(pf.Parameters, pp)
 		}

@@ -545,7 +545,7 @@ func oneClusterLevels(r Reading, ds *data.Dataset) string {
 		more = fmt.Sprintf(" and %d more", len(found)-3)
 		found = found[:3]
 	}
-	return fmt.Sprintf("the rows of %s%s lie in one cluster each (a cluster's own fixed effect, or a level met in one cluster): the score of such a level's column sums to 0 over its rows at the maximum, so its sum in each cluster is 0 and the cluster-robust standard errors, tests and intervals of its effects have nothing to rest on (they come out far too small); read its estimates only, or give it errors that do not cluster by this column",
+	return fmt.Sprintf("the rows of %s%s lie in one cluster each (a cluster's own fixed effect, or a level met in one cluster): the score of such a level's column sums to 0 over its rows at the maximum, so its sum in each cluster is 0 and the cluster-robust standard errors, tests and intervals of its effects have nothing to rest on: the outputs show them as not available (n/a), with the reason; read its estimates only, or give it errors that do not cluster by this column",
 		strings.Join(found, ", "), more)
 }
 

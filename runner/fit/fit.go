@@ -196,6 +196,13 @@ type Result struct {
 	// (Jackknife: the delete-one-cluster jackknife; NoCorrection for the
 	// clustered sandwich and any other).
 	Correction ClusterCorrection
+	// NotEstimable names the parameters whose cluster-robust standard
+	// errors cannot be estimated (their rows and columns of Cov and their
+	// StdErrors are NaN), with the reason; nil when none (onecluster.go).
+	NotEstimable *NotEstimable
+	// bound: the cluster-robust covariance as computed, which the
+	// quantities that do not load on NotEstimable's combinations read.
+	bound *clusterBound
 
 	Cutpoints []float64   // tau_1..tau_{J-1}
 	Effects   [][]float64 // [m][k]: slope of predictor k in equation m

@@ -247,7 +247,7 @@ func WaldLinear(r *Result, h *Hypothesis) Test {
 	for i, row := range h.R {
 		diff[i] = dot(row, r.Estimates) - h.C[i]
 	}
-	x, err := waldStatDiff(h.R, diff, r.Cov, len(r.Estimates), r.Clusters)
+	x, err := r.waldStatDiff(h.R, diff)
 	if err != nil {
 		return failedTest(TestWald.String(), "%v", err)
 	}
@@ -315,7 +315,7 @@ func Contrasts(r *Result, h *Hypothesis, level float64) []Contrast {
 	out := make([]Contrast, len(h.R))
 	for i, row := range h.R {
 		e := dot(row, r.Estimates) - h.C[i]
-		se := math.Sqrt(quadForm(row, r.Cov))
+		se := math.Sqrt(r.variance(row))
 		out[i] = Contrast{Text: ContrastText(row, h.C[i], r.ParamNames), Estimate: e, SE: se, Low: e - z*se, High: e + z*se}
 		if !math.IsInf(df, 1) {
 			out[i].DF = &df

@@ -304,7 +304,7 @@ func (r *Result) CheckScale() {
 			nz.Gamma = append(nz.Gamma, r.Estimates[s])
 			nz.GammaSE = append(nz.GammaSE, r.StdErrors[s])
 		}
-		x, err := waldStat(R, r.Estimates, r.Cov, r.Clusters)
+		x, err := r.waldStat(R)
 		if err != nil {
 			continue
 		}

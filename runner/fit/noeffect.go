@@ -132,7 +132,7 @@ func WaldNoEffect(r *Result, ne *NoEffect) Test {
 	if !r.OK() || r.Cov == nil {
 		return failedTest(TestWald.String(), "%s has no usable estimates", r.Name)
 	}
-	x, err := waldStatDiff(ne.R, ne.Value, r.Cov, len(r.Estimates), r.Clusters)
+	x, err := r.waldStatDiff(ne.R, ne.Value)
 	if err != nil {
 		return failedTest(TestWald.String(), "%v", err)
 	}

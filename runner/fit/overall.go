@@ -72,7 +72,7 @@ func (r *Result) OddsRatios(level float64) ([]OddsRatio, error) {
 	var out []OddsRatio
 	add := func(k, m int, g []float64) {
 		b := r.Effects[max(m-1, 0)][k]
-		se := math.Sqrt(quadForm(g, r.Cov))
+		se := math.Sqrt(r.variance(g))
 		df := r.referenceDF(g)
 		z := TQuantile(0.5+level/2, df)
 		out = append(out, OddsRatio{Predictor: r.Predictors[k], Boundary: m, Kind: kind, Log: b, LogSE: se,
@@ -197,7 +197,7 @@ func (r *Result) OddsRatioOf(name string, d []float64, level float64) ([]Combine
 				g[a] += dk * v
 			}
 		}
-		se := math.Sqrt(quadForm(g, r.Cov))
+		se := math.Sqrt(r.variance(g))
 		df := r.referenceDF(g)
 		z := TQuantile(0.5+level/2, df)
 		o := CombinedOddsRatio{OddsRatio: OddsRatio{Predictor: name, Boundary: m + 1, Kind: kind, Log: b, LogSE: se,
@@ -205,7 +205,10 @@ func (r *Result) OddsRatioOf(name string, d []float64, level float64) ([]Combine
 		if bounds == 1 {
 			o.Boundary = 0
 		}
-		if se > 0 {
+		switch {
+		case math.IsNaN(se):
+			o.Z, o.P = math.NaN(), math.NaN() // not estimable (NotEstimable)
+		case se > 0:
 			o.Z = b / se
 			o.P = TSurvival2(o.Z, df)
 		}

@@ -272,7 +272,7 @@ func WaldEqualSlopes(r *Result, predictors []string) Test {
 			rows = append(rows, row)
 		}
 	}
-	x, err := waldStat(rows, r.Estimates, r.Cov, r.Clusters)
+	x, err := r.waldStat(rows)
 	if err != nil {
 		return failedTest(TestWald.String(), "%v", err)
 	}

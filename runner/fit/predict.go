@@ -220,7 +220,7 @@ func (r *Result) Predict(X []float64, offset []float64) (*Prediction, error) {
 			if v > p[best] {
 				best = j
 			}
-			out.SE[i*J+j] = math.Sqrt(quadForm(G[j*P:(j+1)*P], r.Cov))
+			out.SE[i*J+j] = math.Sqrt(r.variance(G[j*P : (j+1)*P]))
 			out.Expected[i] += float64(j+1) * v
 		}
 		out.MostLikely[i] = best
@@ -235,9 +235,9 @@ func (r *Result) Predict(X []float64, offset []float64) (*Prediction, error) {
 			for a := 0; a < P; a++ {
 				g[a] += G[m*P+a]
 			}
-			out.CumSE[i*q+m] = math.Sqrt(quadForm(g, r.Cov))
+			out.CumSE[i*q+m] = math.Sqrt(r.variance(g))
 			out.Linear[i*q+m] = L[m]
-			out.LinearSE[i*q+m] = math.Sqrt(quadForm(dL[m*P:(m+1)*P], r.Cov))
+			out.LinearSE[i*q+m] = math.Sqrt(r.variance(dL[m*P : (m+1)*P]))
 		}
 		for a := range g {
 			g[a] = 0
@@ -245,7 +245,7 @@ func (r *Result) Predict(X []float64, offset []float64) (*Prediction, error) {
 				g[a] += float64(j+1) * G[j*P+a]
 			}
 		}
-		out.ExpectedSE[i] = math.Sqrt(quadForm(g, r.Cov))
+		out.ExpectedSE[i] = math.Sqrt(r.variance(g))
 	}
 	return out, nil
 }

@@ -22,6 +22,12 @@ type SandwichInfo struct {
 	// sandwich and the jackknife; 0 for the normal and chi-square).
 	Correction ClusterCorrection `json:"correction,omitempty"`
 	DF         float64           `json:"reference_df,omitempty"`
+	// NotEstimable names the parameters a cluster-robust covariance cannot
+	// estimate (nil: none), whose rows and columns of the covariance are
+	// NaN; bound keeps the covariance as computed to judge other
+	// quantities (see NotEstimable).
+	NotEstimable *NotEstimable `json:"-"`
+	bound        *clusterBound
 }
 
 // rowScores calls fn(i, s) with the score of row i in the parameters
@@ -189,6 +195,15 @@ func sandwich(d *Data, r *Result, clusters []string, probability, factor bool) (
 	for i := range V {
 		V[i] *= info.Factor
 	}
+	if info.Type == Clustered {
+		dirs, ids, minv, err := oneClusterCombinations(pr, theta, clusters, w)
+		if err != nil {
+			return nil, info, err
+		}
+		if len(dirs) > 0 {
+			info.bound, info.NotEstimable = markNotEstimable(V, r.ParamNames, dirs, ids, minv)
+		}
+	}
 	return V, info, nil
 }
 
@@ -220,6 +235,7 @@ func (r *Result) UseCovariance(V []float64, info SandwichInfo) {
 	r.Clusters = info.Clusters
 	r.RefDF = info.DF
 	r.Correction = info.Correction
+	r.NotEstimable, r.bound = info.NotEstimable, info.bound
 	r.StdErrors = make([]float64, P)
 	for i := 0; i < P; i++ {
 		r.StdErrors[i] = math.Sqrt(math.Max(V[i*P+i], 0))
@@ -274,6 +290,9 @@ func ClusterJackknife(d *Data, r *Result, clusters []string, opt Options) ([]flo
 	info.Clusters = G
 	if G < 2 {
 		return nil, info, fmt.Errorf("the jackknife covariance needs at least 2 clusters, got %d", G)
+	}
+	if err := jackknifeBound(d, r, clusters); err != nil {
+		return nil, info, err
 	}
 	opt.Start = r.Estimates
 	opt.RandomStarts = -1
@@ -366,4 +385,24 @@ func (d *Data) emptyCategory() int {
 		}
 	}
 	return slices.Index(seen, false)
+}
+
+// jackknifeBound refuses the delete-one-cluster jackknife of fit r when
+// some of its parameters rest on columns whose rows all lie in one cluster
+// (NotEstimable): the refit without that cluster cannot estimate them, so
+// no jackknife covariance is computed, and the reason says which.
+func jackknifeBound(d *Data, r *Result, clusters []string) error {
+	ly, err := newLayout(r.Model, d.J, d.Predictors)
+	if err != nil {
+		return err
+	}
+	pr := newProblem(d.design(), r.Model, ly, 0)
+	dirs, ids, minv, err := oneClusterCombinations(pr, r.Estimates, clusters, d.weight)
+	if err != nil || len(dirs) == 0 {
+		return err
+	}
+	V := make([]float64, len(r.Estimates)*len(r.Estimates))
+	_, ne := markNotEstimable(V, r.ParamNames, dirs, ids, minv)
+	return fmt.Errorf("%s; the delete-one-cluster jackknife refits the model without each cluster, and without cluster %q the refit cannot estimate them, so it is not computed",
+		ne.Reason, ne.Clusters[0])
 }

@@ -209,12 +209,17 @@ func (r *Result) effectRows(name string, discrete bool, eff, jac []float64, leve
 	P := len(r.Estimates)
 	out := make([]MarginalEffect, len(eff))
 	for j := range eff {
-		se := math.Sqrt(quadForm(jac[j*P:(j+1)*P], r.Cov))
+		se := math.Sqrt(r.variance(jac[j*P : (j+1)*P]))
 		me := MarginalEffect{Predictor: name, Category: r.Categories[j], Discrete: discrete, Effect: eff[j], SE: se}
-		if se > 0 {
+		switch {
+		case math.IsNaN(se):
+			// Not estimable under clustered errors (NotEstimable): no
+			// statistic either.
+			me.Z, me.P = math.NaN(), math.NaN()
+		case se > 0:
 			me.Z = eff[j] / se
 			me.P = TSurvival2(me.Z, df)
-		} else {
+		default:
 			me.P = 1
 		}
 		me.Low, me.High = eff[j]-z*se, eff[j]+z*se

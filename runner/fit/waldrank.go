@@ -114,7 +114,11 @@ func (r *Result) WaldDefined(R [][]float64) error {
 	if len(r.Cov) != P*P {
 		return fmt.Errorf("%s has no covariance", r.Name)
 	}
-	M, err := restrictedCov(R, r.Cov, P)
+	V, err := r.waldCov(R)
+	if err != nil {
+		return err
+	}
+	M, err := restrictedCov(R, V, P)
 	if err != nil {
 		return err
 	}

@@ -1,0 +1,427 @@
+package fit
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// NotEstimable names the parameters of a fit whose cluster-robust
+// standard errors cannot be estimated: each is moved by a combination of
+// the model's columns whose rows (the rows where its score is not 0) all
+// lie in one cluster, such as a cluster's own fixed effect under errors
+// clustered by the same column, a level met in one cluster, an
+// interaction with such a level, or the reference level's intercept when
+// every level is one cluster. That combination's score sums to 0 over
+// its rows at the maximum, so its sum in that cluster, and in every
+// other, is 0: the cluster-robust "meat" carries no information on it
+// and its variance would come out near 0. Such parameters get NaN
+// standard errors, and every quantity whose gradient loads on such a
+// combination (Result.variance, Result.waldRestrictions) is not computed,
+// with Reason.
+type NotEstimable struct {
+	Parameters []string `json:"parameters"`
+	// Clusters are the clusters whose rows alone carry the combinations
+	// (sorted).
+	Clusters []string `json:"clusters"`
+	Reason   string   `json:"reason"`
+}
+
+// clusterBound is what a fit keeps of NotEstimable to judge other
+// quantities: the covariance as computed (raw), the combinations found
+// (dirs, in the parameters) and the pseudo-inverse of the rows' score
+// cross-products (minv), the scale against which a gradient's load on
+// them is measured (loads).
+type clusterBound struct {
+	raw  []float64
+	dirs [][]float64
+	ids  []string // the cluster of each of dirs
+	minv []float64
+}
+
+// boundTolerance: a combination counts as lying in one cluster when
+// that cluster holds all but this share of its whitened score energy
+// (rounding leaves about 1e-12 on a true one), and a gradient loads on
+// such combinations when more than this share of its whitened norm lies
+// along them.
+const boundTolerance = 1e-7
+
+// loads reports whether gradient g (over the parameters) has a
+// non-negligible share along the one-cluster combinations: sum_k
+// (g'v_k)^2 / g'M^+g above boundTolerance, with the v_k orthonormal in
+// the metric of M, the rows' weighted score cross-products.
+func (b *clusterBound) loads(g []float64) bool {
+	tot := quadForm(g, b.minv)
+	if tot == 0 {
+		return false
+	}
+	on := 0.0
+	for _, v := range b.dirs {
+		d := dot(g, v)
+		on += d * d
+	}
+	return on > boundTolerance*tot
+}
+
+// variance is g'Vg, the delta-method variance of g'theta from r's
+// covariance, or NaN when g loads on a combination of the parameters that
+// r's cluster-robust covariance cannot estimate (NotEstimable): the one
+// reading of the covariance for single quantities (contrasts, odds
+// ratios, marginal effects, predictions).
+func (r *Result) variance(g []float64) float64 {
+	if r.bound != nil {
+		if r.bound.loads(g) {
+			return math.NaN()
+		}
+		return quadForm(g, r.bound.raw)
+	}
+	return quadForm(g, r.Cov)
+}
+
+// waldCov is the covariance a Wald test of the restrictions R reads from
+// r: its covariance, or under NotEstimable the covariance as computed
+// once no row of R loads on a combination it cannot estimate; else an
+// error with the reason, so that the test is not computed.
+func (r *Result) waldCov(R [][]float64) ([]float64, error) {
+	if r.bound == nil {
+		return r.Cov, nil
+	}
+	for _, row := range R {
+		if r.bound.loads(row) {
+			return nil, fmt.Errorf("%s", r.NotEstimable.Reason)
+		}
+	}
+	return r.bound.raw, nil
+}
+
+// waldStatDiff is the Wald statistic diff' (R V R')^-1 diff of the
+// restrictions R on r's covariance (waldCov: not computed when a row loads
+// on a combination the cluster-robust covariance cannot estimate).
+func (r *Result) waldStatDiff(R [][]float64, diff []float64) (float64, error) {
+	V, err := r.waldCov(R)
+	if err != nil {
+		return 0, err
+	}
+	return waldStatDiff(R, diff, V, len(r.Estimates), r.Clusters)
+}
+
+// waldStat is the Wald statistic of R theta = 0 on r's covariance (see
+// waldStatDiff).
+func (r *Result) waldStat(R [][]float64) (float64, error) {
+	rt := make([]float64, len(R))
+	for i, row := range R {
+		rt[i] = dot(row, r.Estimates)
+	}
+	return r.waldStatDiff(R, rt)
+}
+
+// VarianceAvailable reports whether the delta-method variance of g'theta
+// can be read from r's covariance (see variance).
+func (r *Result) VarianceAvailable(g []float64) bool {
+	return r.bound == nil || !r.bound.loads(g)
+}
+
+// oneClusterCombinations finds the combinations v of the parameters whose
+// weighted row scores w_i s_i'v are 0 outside one cluster, for the rows
+// (one cluster id each) and scores of pr at theta. It returns them
+// orthonormal in the metric of M = sum_i (w_i s_i)(w_i s_i)' (nil when
+// none), the cluster of each, and the pseudo-inverse of M.
+//
+// Whitened by M (z_i = W w_i s_i, sum_i z_i z_i' = I on M's range), a
+// combination y lies in cluster g when sum_{i in g} (y'z_i)^2 = 1. Such y
+// has y'(sum_{i in g} z_i) = y'W (total score), near 0 at the maximum, in
+// every cluster, so it lies in the null space of the whitened meat
+// sum_g zbar_g zbar_g': found first (one eigendecomposition); only when
+// that space is not empty are the clusters' rows read again, each
+// cluster's rows projected on it, and the right singular vectors of
+// singular value 1 kept.
+func oneClusterCombinations(pr *problem, theta []float64, clusters []string, w func(int) float64) ([][]float64, []string, []float64, error) {
+	P := len(theta)
+	M := make([]float64, P*P)
+	sums := map[string][]float64{}
+	rows := map[string][]int{}
+	err := pr.rowScores(theta, func(i int, s []float64) {
+		wi := w(i)
+		if wi <= 0 {
+			return
+		}
+		cs, ok := sums[clusters[i]]
+		if !ok {
+			cs = make([]float64, P)
+			sums[clusters[i]] = cs
+		}
+		for j := range s {
+			cs[j] += wi * s[j]
+		}
+		addOuter(M, s, wi*wi)
+		rows[clusters[i]] = append(rows[clusters[i]], i)
+	})
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	// W = Lambda^-1/2 U' D^-1/2 over the eigenvalues of D^-1/2 M D^-1/2
+	// above RankTolerance times the largest.
+	dsc := make([]float64, P)
+	for j := range dsc {
+		if v := M[j*P+j]; v > 0 {
+			dsc[j] = 1 / math.Sqrt(v)
+		}
+	}
+	S := mat.NewSymDense(P, nil)
+	for a := 0; a < P; a++ {
+		for b := a; b < P; b++ {
+			S.SetSym(a, b, M[a*P+b]*dsc[a]*dsc[b])
+		}
+	}
+	var es mat.EigenSym
+	if !es.Factorize(S, true) {
+		return nil, nil, nil, fmt.Errorf("the rows' score cross-products could not be decomposed")
+	}
+	vals := es.Values(nil)
+	var U mat.Dense
+	es.VectorsTo(&U)
+	largest := vals[len(vals)-1]
+	var W [][]float64 // rows of W
+	for k, l := range vals {
+		if !(l > RankTolerance*largest) {
+			continue
+		}
+		row := make([]float64, P)
+		for j := 0; j < P; j++ {
+			row[j] = U.At(j, k) / math.Sqrt(l) * dsc[j]
+		}
+		W = append(W, row)
+	}
+	r := len(W)
+	minv := make([]float64, P*P)
+	for _, row := range W {
+		addOuter(minv, row, 1)
+	}
+	whiten := func(s []float64) []float64 {
+		z := make([]float64, r)
+		for k, row := range W {
+			z[k] = dot(row, s)
+		}
+		return z
+	}
+	// The whitened meat and its null space.
+	keys := make([]string, 0, len(sums))
+	for k := range sums {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	B := mat.NewSymDense(r, nil)
+	for _, k := range keys {
+		z := whiten(sums[k])
+		for a := 0; a < r; a++ {
+			for b := a; b < r; b++ {
+				B.SetSym(a, b, B.At(a, b)+z[a]*z[b])
+			}
+		}
+	}
+	if !es.Factorize(B, true) {
+		return nil, nil, nil, fmt.Errorf("the cluster-robust meat could not be decomposed")
+	}
+	bvals := es.Values(nil)
+	var BU mat.Dense
+	es.VectorsTo(&BU)
+	limit := 1e-8 * math.Max(bvals[len(bvals)-1], 1)
+	var null [][]float64 // basis of the null space, in whitened coordinates
+	for k, l := range bvals {
+		if l <= limit {
+			y := make([]float64, r)
+			for a := range y {
+				y[a] = BU.At(a, k)
+			}
+			null = append(null, y)
+		}
+	}
+	if len(null) == 0 {
+		return nil, nil, minv, nil
+	}
+	// Each cluster's rows projected on the null space: a right singular
+	// vector of singular value 1 lies in that cluster alone.
+	nk := len(null)
+	var dirs [][]float64
+	var ids []string
+	err = nil
+	byRow := map[int][]float64{}
+	if e := pr.rowScores(theta, func(i int, s []float64) {
+		wi := w(i)
+		if wi <= 0 {
+			return
+		}
+		ws := make([]float64, P)
+		for j := range s {
+			ws[j] = wi * s[j]
+		}
+		z := whiten(ws)
+		t := make([]float64, nk)
+		for k, y := range null {
+			t[k] = dot(y, z)
+		}
+		byRow[i] = t
+	}); e != nil {
+		return nil, nil, nil, e
+	}
+	for _, k := range keys {
+		rs := rows[k]
+		T := mat.NewDense(len(rs), nk, nil)
+		for a, i := range rs {
+			T.SetRow(a, byRow[i])
+		}
+		var svd mat.SVD
+		if !svd.Factorize(T, mat.SVDThinV) {
+			return nil, nil, nil, fmt.Errorf("cluster %q: its rows' scores could not be decomposed", k)
+		}
+		sv := svd.Values(nil)
+		var V mat.Dense
+		svd.VTo(&V)
+		for c, s := range sv {
+			if s*s < 1-boundTolerance {
+				continue
+			}
+			// y = null' u in whitened coordinates; v = W' y in the
+			// parameters.
+			y := make([]float64, r)
+			for m := 0; m < nk; m++ {
+				u := V.At(m, c)
+				for a := range y {
+					y[a] += null[m][a] * u
+				}
+			}
+			v := make([]float64, P)
+			for a, row := range W {
+				for j := range v {
+					v[j] += y[a] * row[j]
+				}
+			}
+			dirs = append(dirs, v)
+			ids = append(ids, k)
+		}
+	}
+	return dirs, ids, minv, nil
+}
+
+// markNotEstimable sets the NaN rows and columns of V (P x P) of the
+// parameters that load on dirs, returns what the fit keeps to judge
+// other quantities and the NotEstimable naming them.
+func markNotEstimable(V []float64, names []string, dirs [][]float64, ids []string, minv []float64) (*clusterBound, *NotEstimable) {
+	P := len(names)
+	b := &clusterBound{raw: append([]float64(nil), V...), dirs: dirs, ids: ids, minv: minv}
+	ne := &NotEstimable{}
+	e := make([]float64, P)
+	var drop []int
+	for j := 0; j < P; j++ {
+		e[j] = 1
+		if b.loads(e) {
+			drop = append(drop, j)
+			ne.Parameters = append(ne.Parameters, names[j])
+		}
+		e[j] = 0
+	}
+	for _, j := range drop {
+		for a := 0; a < P; a++ {
+			V[j*P+a] = math.NaN()
+			V[a*P+j] = math.NaN()
+		}
+	}
+	seen := map[string]bool{}
+	for _, id := range ids {
+		if !seen[id] {
+			seen[id] = true
+			ne.Clusters = append(ne.Clusters, id)
+		}
+	}
+	sort.Strings(ne.Clusters)
+	ne.Reason = notEstimableReason(ne, func(s string) string { return s })
+	return b, ne
+}
+
+// notEstimableReason is the one wording of NotEstimable's reason, its
+// parameters written by name (Reason: as they are; a report escapes them).
+func notEstimableReason(ne *NotEstimable, name func(string) string) string {
+	params := make([]string, len(ne.Parameters))
+	for i, p := range ne.Parameters {
+		params[i] = name(p)
+	}
+	ids := make([]string, len(ne.Clusters))
+	for i, c := range ne.Clusters {
+		ids[i] = strconv.Quote(c)
+	}
+	list := func(xs []string, n int) string {
+		if len(xs) <= n {
+			return strings.Join(xs, ", ")
+		}
+		return strings.Join(xs[:n], ", ") + fmt.Sprintf(" and %d more", len(xs)-n)
+	}
+	clusters := "cluster " + list(ids, 3)
+	if len(ids) > 1 {
+		clusters = "clusters " + list(ids, 3)
+	}
+	return fmt.Sprintf("the standard errors of %s are not estimable under clustered errors: they depend on combinations of the model's columns whose rows all lie in one cluster (%s), "+
+		"such as a cluster's own fixed effect or a level met in one cluster; such a combination's score sums to 0 within its cluster at the maximum, so the cluster-robust covariance has no information on it. "+
+		"These standard errors, and every test, interval, odds-ratio interval, marginal effect or prediction interval that depends on them, are not available (n/a); "+
+		"read those estimates only, or use errors that do not cluster by this column",
+		list(params, 8), clusters)
+}
+
+// NotEstimableNote is the reason of NotEstimable with the parameters
+// written by name (a report's escaping), or "" when every standard error
+// is estimable.
+func (r *Result) NotEstimableNote(name func(string) string) string {
+	if r.NotEstimable == nil {
+		return ""
+	}
+	return notEstimableReason(r.NotEstimable, name)
+}
+
+// CovarianceAsComputed is r's covariance with the rows and columns of
+// NotEstimable's parameters as the sandwich computed them (what pooling
+// over imputed sets combines, PoolNotEstimable marking the pooled fit
+// again), or Cov when there are none.
+func (r *Result) CovarianceAsComputed() []float64 {
+	if r.bound != nil {
+		return r.bound.raw
+	}
+	return r.Cov
+}
+
+// PoolNotEstimable marks on r, a fit pooled over imputed sets whose Cov
+// pools the sets' CovarianceAsComputed, the parameters that any set's
+// cluster-robust covariance cannot estimate (NotEstimable: their rows and
+// columns of Cov and their StdErrors NaN), and keeps the pooled covariance
+// as computed for the quantities that do not load on them; r's own
+// NotEstimable and bound (copied from a set) are replaced.
+func (r *Result) PoolNotEstimable(sets []*Result) {
+	r.NotEstimable, r.bound = nil, nil
+	var dirs [][]float64
+	var ids []string
+	var minv []float64
+	for _, s := range sets {
+		if s.bound == nil {
+			continue
+		}
+		dirs = append(dirs, s.bound.dirs...)
+		ids = append(ids, s.bound.ids...)
+		if minv == nil {
+			minv = s.bound.minv
+		}
+	}
+	if len(dirs) == 0 {
+		return
+	}
+	r.Cov = append([]float64(nil), r.Cov...)
+	r.bound, r.NotEstimable = markNotEstimable(r.Cov, r.ParamNames, dirs, ids, minv)
+	r.StdErrors = append([]float64(nil), r.StdErrors...)
+	P := len(r.StdErrors)
+	for i := range r.StdErrors {
+		if math.IsNaN(r.Cov[i*P+i]) {
+			r.StdErrors[i] = math.NaN()
+		}
+	}
+}
