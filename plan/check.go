@@ -2,6 +2,7 @@ package plan
 
 import (
 	"slices"
+	"strconv"
 	"strings"
 
 	"gopkg.in/yaml.v3"
@@ -36,14 +37,45 @@ func (d *decoder) check(p *Plan) {
 	if d.predictorsKnown(p) {
 		d.checkInference(p)
 	}
-	if b := p.Report.PanelsBy; b != "" && d.clean("report.panels_by") && p.categorical(b) == nil {
-		d.errAt("report.panels_by", "%s is not a column declared under categorical", quote(b))
-	} else if b != "" && b == p.Report.FocusPredictor {
-		d.errAt("report.panels_by", "%s is already the focus predictor; panels_by names another categorical column", quote(b))
-	}
+	d.checkPanels(p)
 	if f := p.Report.FocusPredictor; d.given("report.focus_predictor") && d.predictorsKnown(p) && !slices.Contains(p.Predictors, f) && !slices.Contains(p.SourceColumns(), f) {
 		d.errAt("report.focus_predictor", "%s is not a predictor (%s)", quote(f), known(p.Predictors))
 	}
+}
+
+// checkPanels checks report.panels_by: a column the terms read (a
+// categorical one, or a numeric one holding only 0 and 1, which only the
+// data can show: runner's checkPanels), not the focus predictor, and,
+// numeric, not one the dictionary lets take other values.
+func (d *decoder) checkPanels(p *Plan) {
+	b := p.Report.PanelsBy
+	if b == "" || !d.clean("report.panels_by") {
+		return
+	}
+	const what = "panels_by names a categorical predictor, a panel per level, or a predictor holding only 0 and 1, a panel at 0 and one at 1"
+	switch {
+	case d.predictorsKnown(p) && !slices.Contains(p.SourceColumns(), b):
+		d.errAt("report.panels_by", "%s is not a column the predictors read (%s): %s", quote(b), strings.Join(p.SourceColumns(), ", "), what)
+	case b == p.Report.FocusPredictor:
+		d.errAt("report.panels_by", "%s is already the focus predictor; %s, other than the focus", quote(b), what)
+	case p.categorical(b) == nil:
+		if e := p.EntryOf(b); e != nil {
+			if v := otherThanZeroOne(e); v != "" {
+				d.errAt("report.panels_by", "%s is a numeric column whose values (%s.values) include %s: %s; declare it under categorical for a panel per value", quote(b), e.Key, v, what)
+			}
+		}
+	}
+}
+
+// otherThanZeroOne gives a value other than 0 and 1 that a dictionary
+// entry lists among its column's values ("" when there is none).
+func otherThanZeroOne(e *Entry) string {
+	for _, v := range e.Values {
+		if x, err := strconv.ParseFloat(v, 64); err != nil || (x != 0 && x != 1) {
+			return v
+		}
+	}
+	return ""
 }
 
 // predictorsKnown reports whether predictors was read well enough for

@@ -10,6 +10,7 @@ import (
 	"github.com/go-echarts/go-echarts/v2/charts"
 	"github.com/go-echarts/go-echarts/v2/opts"
 
+	"ordplan/internal/words"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/fit"
@@ -29,37 +30,106 @@ func writePredictions(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		d.p("On imputed data the curves and the table below are at the pooled estimates, with delta-method errors from the total (within + between) covariance; to first order this equals pooling the predictions of each set. The predictions for new rows are pooled set by set.")
 	}
 	by, panels := predictionPanels(r, or)
+	heldShare(d, r, or, panels[0].fixed, by)
 	if by == "" {
 		writePredictionPanel(d, r, or, nil, "")
 		return
 	}
-	d.p("One panel per level of %s (report.panels_by), so that the predictions can be compared across its levels, as an interaction needs.", mdCode(by))
+	if _, zeroOne := or.PanelValues(by); zeroOne {
+		d.p("One panel for each value of %s (report.panels_by), 0 and 1, so that the predictions can be compared between them, as an interaction needs.", mdCode(by))
+	} else {
+		d.p("One panel per level of %s (report.panels_by), so that the predictions can be compared across its levels, as an interaction needs.", mdCode(by))
+	}
 	for _, p := range panels {
 		d.h(4, mdText(p.label))
 		writePredictionPanel(d, r, or, p.fixed, p.label)
 	}
 }
 
-// predictionPanel is one panel of predictions: the level of the column
+// heldShare says, before the predictions, which numeric columns holding
+// only 0 and 1 the predictions hold at their mean, the share of rows at
+// 1: a value no single row has, so that the predictions are of no one
+// who exists and, the model not being linear, not the average of the
+// predictions at 0 and at 1 either. It points at report.panels_by, and
+// names the columns the plan's dictionary says were assigned by chance,
+// whose panels are the arms of the trial. Nothing when there is none.
+func heldShare(d *doc, r *runner.Result, or *runner.OutcomeResult, fixed map[string]string, by string) {
+	pf, err := newProfile(or, focusName(r), fixed)
+	if err != nil {
+		return
+	}
+	names, held := pf.HeldZeroOne()
+	if len(names) == 0 {
+		return
+	}
+	var code []string
+	for _, n := range names {
+		code = append(code, mdCode(n))
+	}
+	cols := "column " + code[0] + ", which holds only 0 and 1, is"
+	it := "its mean, the share of rows at 1"
+	if len(names) > 1 {
+		cols = "columns " + words.AndList(code) + ", which hold only 0 and 1, are"
+		it = "their means, the shares of rows at 1"
+	}
+	s := fmt.Sprintf("In these predictions the %s held at %s (%s): no person (no row of the data) has such a value, so the predictions are for no one who exists, and, the model not being linear, they are not the mix of the predictions at 0 and at 1 in those shares either.", cols, it, mdText(strings.Join(held, ", ")))
+	var chance []string
+	if r.Plan != nil {
+		for _, n := range names {
+			if slices.Contains(r.Plan.ByChanceColumns(), n) {
+				chance = append(chance, n)
+			}
+		}
+	}
+	if len(chance) > 0 {
+		var code []string
+		for _, n := range chance {
+			code = append(code, mdCode(n))
+		}
+		was := " was"
+		if len(chance) > 1 {
+			was = " were"
+		}
+		its := "its"
+		if len(chance) > 1 {
+			its = "their"
+		}
+		s += " " + words.AndList(code) + was + " assigned by chance (the dictionary's assigned_by_chance), so " + its + " values are the arms of the trial:"
+		if by == "" {
+			s += fmt.Sprintf(" to see the predictions in each arm, name it in report.panels_by (%s), which draws a panel at 0 and one at 1.", mdCode("panels_by: "+chance[0]))
+		} else {
+			s += fmt.Sprintf(" report.panels_by can name it in place of %s (%s), for a panel in each arm.", mdCode(by), mdCode("panels_by: "+chance[0]))
+		}
+	} else if by == "" {
+		s += " To compare the predictions at 0 and at 1 of such a column, name it in report.panels_by, which draws a panel for each value."
+	} else {
+		s += fmt.Sprintf(" report.panels_by, %s here, can name such a column instead, for a panel at 0 and one at 1.", mdCode(by))
+	}
+	d.p("%s", s)
+}
+
+// predictionPanel is one panel of predictions: the value of the column
 // of report.panels_by it holds (fixed), its label (street_type =
-// residential) and the level alone.
+// residential, pilot = 1) and the value alone.
 type predictionPanel struct {
 	fixed        map[string]string
 	label, level string
 }
 
 // predictionPanels gives the column of report.panels_by and a panel per
-// level of it, or "" and one panel holding nothing when the plan asks
-// for no panels (or names no column of the predictors).
+// value of it (runner.OutcomeResult.PanelValues: each level of a
+// categorical column, or 0 and 1), or "" and one panel holding nothing
+// when the plan asks for no panels (or names no column of the
+// predictors).
 func predictionPanels(r *runner.Result, or *runner.OutcomeResult) (string, []predictionPanel) {
 	by := r.Plan.Report.PanelsBy
-	if by == "" || or.Design == nil || or.Design.Source(by) < 0 {
+	values, _ := or.PanelValues(by)
+	if values == nil {
 		return "", []predictionPanel{{}}
 	}
-	levels, _ := or.Design.Coded(or.Design.Source(by))
-	out := make([]predictionPanel, len(levels))
-	for i, l := range levels {
-		out[i] = predictionPanel{fixed: map[string]string{by: l}, label: fmt.Sprintf("%s = %s", by, l), level: l}
+	out := make([]predictionPanel, len(values))
+	for i, v := range values {
+		out[i] = predictionPanel{fixed: map[string]string{by: v}, label: fmt.Sprintf("%s = %s", by, v), level: v}
 	}
 	return by, out
 }

@@ -484,8 +484,9 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 
 // predictedCSV is the table of predicted probabilities over the focus
 // predictor at chartPoints values, one block of rows per panel of
-// report.panels_by (its column first, naming the panel's level), as the
-// report's panels show them; ok is false when no prediction is made.
+// report.panels_by (its column first, naming the panel's level or its
+// value, 0 or 1), as the report's panels show them; ok is false when no
+// prediction is made.
 func predictedCSV(r *runner.Result, or *runner.OutcomeResult, lv string) (kind, about string, head []string, rows [][]string, ok bool) {
 	by, panels := predictionPanels(r, or)
 	_, z := chosenConfidence(r, or)
@@ -522,6 +523,9 @@ func predictedCSV(r *runner.Result, or *runner.OutcomeResult, lv string) (kind, 
 	if by != "" {
 		head = append([]string{by}, head...)
 		about = fmt.Sprintf("predicted probabilities of the chosen model over %s, one panel per level of %s (report.panels_by; column %s: the level it is held at)%s", focus, by, by, where)
+		if _, zeroOne := or.PanelValues(by); zeroOne {
+			about = fmt.Sprintf("predicted probabilities of the chosen model over %s, one panel for each of the values 0 and 1 of %s (report.panels_by; column %s: the value it is held at)%s", focus, by, by, where)
+		}
 	}
 	about += fmt.Sprintf(" with delta-method standard errors and %s%% intervals made on the log-odds scale of the probability (inside 0 and 1; empty for a negative probability)", lv)
 	return "predicted", about, head, rows, true

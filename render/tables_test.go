@@ -236,6 +236,77 @@ func TestPredictedCSVEveryPanel(t *testing.T) {
 		"as age varies, with other predictors at their means, categorical ones at their reference level;")
 }
 
+// TestPanelsByZeroOne: report.panels_by may name a predictor holding only
+// 0 and 1 (here pilot, assigned by chance, which interacts with
+// street_type): a panel at 0 and one at 1, labelled pilot = 0 and pilot =
+// 1, each table held there; the CSV's first column and decisions.json
+// name the panel's value; the 0/1 columns not the panel are said to be
+// held at their shares of 1, which no row has. Without panels the report
+// says so of pilot too and points at report.panels_by.
+func TestPanelsByZeroOne(t *testing.T) {
+	dict := "dictionary:\n  pilot: {values: [0, 1], assigned_by_chance: true}\n  female: {values: [0, 1]}\n  cyclist: {values: [0, 1]}\n  street_type: {label: street}\n  age: {range: [16, 100]}\n"
+	files := renderSource(t, t.TempDir(), goldenWith(t, "  panels_by: pilot\n")+dict, 1)
+	md := string(files["report.md"])
+	hasAll(t, "report.md", md,
+		"One panel for each value of `pilot` (report.panels_by), 0 and 1, so that the predictions can be compared between them",
+		"#### pilot = 0", "#### pilot = 1",
+		"categorical ones at the level shown (pilot 0 in this panel, female 0.532203, cyclist 0.244068, street_type residential)",
+		"categorical ones at the level shown (pilot 1 in this panel, female 0.532203, cyclist 0.244068, street_type residential)",
+		"In these predictions the columns `female` and `cyclist`, which hold only 0 and 1, are held at their means, the shares of rows at 1 (female 0.532203, cyclist 0.244068): no person (no row of the data) has such a value",
+		"as age varies, with pilot = 1, other predictors at their means, categorical ones at their reference level;",
+		"one panel for each of the values 0 and 1 of pilot (report.panels_by; column pilot: the value it is held at)")
+	if strings.Contains(md, "pilot 0.332203") {
+		t.Error("pilot, the panels' column, is still said to be held at its mean")
+	}
+	recs, err := csv.NewReader(bytes.NewReader(files["table-predicted-safety.csv"])).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := strings.Join(recs[0], ","); got != "pilot,age,category,probability,std_error,low_90,high_90" {
+		t.Fatalf("header %s", got)
+	}
+	perPanel := map[string]int{}
+	first := map[string]string{}
+	for _, r := range recs[1:] {
+		perPanel[r[0]]++
+		if perPanel[r[0]] == 1 {
+			first[r[0]] = r[3]
+		}
+	}
+	if len(perPanel) != 2 || perPanel["0"] != chartPoints*5 || perPanel["1"] != chartPoints*5 {
+		t.Errorf("rows per panel %v, want %d at 0 and at 1", perPanel, chartPoints*5)
+	}
+	for _, v := range []string{"0", "1"} {
+		p, _ := strconv.ParseFloat(first[v], 64)
+		i := strings.Index(md, "#### pilot = "+v)
+		row := regexp.MustCompile(`\n\| -?[0-9.]+ \| ([^\n]*)`).FindStringSubmatch(md[max(i, 0):])
+		if i < 0 || row == nil || !strings.HasPrefix(row[1], strconv.FormatFloat(p, 'f', 4, 64)+" (") {
+			t.Errorf("panel pilot = %s: CSV %s, report's row %q", v, first[v], row)
+		}
+	}
+	if first["0"] == first["1"] {
+		t.Error("the panels at 0 and 1 predict alike")
+	}
+	hasAll(t, "decisions.json", string(files["decisions.json"]), `"prediction_panels": {
+        "column": "pilot",
+        "kind": "zero_one",
+        "values": [
+          "0",
+          "1"
+        ]
+      }`)
+	// Without panels pilot is held at its share, which the report says,
+	// pointing at report.panels_by for the arms.
+	plainFiles := renderSource(t, t.TempDir(), goldenWith(t, "")+dict, 1)
+	plain := string(plainFiles["report.md"])
+	hasAll(t, "report.md without panels", plain,
+		"In these predictions the columns `pilot`, `female` and `cyclist`, which hold only 0 and 1, are held at their means, the shares of rows at 1 (pilot 0.332203, female 0.532203, cyclist 0.244068)",
+		"`pilot` was assigned by chance (the dictionary's assigned_by_chance), so its values are the arms of the trial: to see the predictions in each arm, name it in report.panels_by (`panels_by: pilot`), which draws a panel at 0 and one at 1.")
+	if bytes.Contains(plainFiles["decisions.json"], []byte("prediction_panels")) {
+		t.Error("decisions.json records panels the plan did not ask for")
+	}
+}
+
 // TestSlopesSayWhereTheyHold: the slopes across boundaries of a column
 // whose term enters an interaction hold where the terms it interacts
 // with are at 0; the table says so in a column Holds at, as the odds

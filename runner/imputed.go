@@ -788,6 +788,9 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 		run.observed = &o
 	}
 	or := &OutcomeResult{Outcome: oc, Data: &ds, Observed: run.observed, FitData: run.Sets[0], Design: dz, Terms: termsOf(dz), dataOptions: r.Options, Imputed: run}
+	if err := an.checkPanels(r, or.AsRead(), dz); err != nil {
+		return nil, err
+	}
 	or.Notes = append(append(or.Notes, ds.Notes...), dz.Notes...)
 	if w := an.FewClusters(r, &ds); w != "" {
 		or.Notes = append(or.Notes, w)

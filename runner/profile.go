@@ -2,6 +2,7 @@ package runner
 
 import (
 	"fmt"
+	"maps"
 	"math"
 	"slices"
 	"strings"
@@ -32,8 +33,9 @@ type Profile struct {
 }
 
 // NewProfile describes predictions over column focus (a column the terms
-// read, or a term, whose first column is used), with the categorical
-// columns in fixed held at the given levels.
+// read, or a term, whose first column is used), with the columns in fixed
+// held at the given values: a categorical column at a level, a 0/1 column
+// (a panel of report.panels_by) at 0 or 1.
 func (or *OutcomeResult) NewProfile(focus string, fixed map[string]string) (*Profile, error) {
 	if err := or.ensureDesign(); err != nil {
 		return nil, err
@@ -49,12 +51,17 @@ func (or *OutcomeResult) NewProfile(focus string, fixed map[string]string) (*Pro
 		return nil, fmt.Errorf("the focus predictor %q is not a predictor of the model", focus)
 	}
 	pf := &Profile{Focus: dz.Sources[s].Name, or: or, s: s, base: or.representative(nil, false), hasOff: or.Data.Offset != nil}
-	for col, level := range fixed {
+	for _, col := range slices.Sorted(maps.Keys(fixed)) {
+		value := fixed[col]
 		c := dz.Source(col)
-		if c < 0 || dz.Level(c, level) < 0 {
-			return nil, fmt.Errorf("%q is not a level of the categorical column %q", level, col)
+		switch {
+		case c >= 0 && dz.Sources[c].Cat == nil && (value == "0" || value == "1"):
+			pf.base[c] = float64(value[0] - '0')
+		case c < 0 || dz.Level(c, value) < 0:
+			return nil, fmt.Errorf("%q is not a level of the categorical column %q", value, col)
+		default:
+			pf.base[c] = float64(dz.Level(c, value))
 		}
-		pf.base[c] = float64(dz.Level(c, level))
 		pf.fixed = append(pf.fixed, c)
 	}
 	if pf.hasOff {
@@ -73,21 +80,84 @@ func (or *OutcomeResult) NewProfile(focus string, fixed map[string]string) (*Pro
 	if j < 0 {
 		return nil, fmt.Errorf("the focus predictor %q is not a column of the data", focus)
 	}
-	pf.Min, pf.Max, pf.Binary = math.Inf(1), math.Inf(-1), true
-	for i := 0; i < ref.N; i++ {
-		v := ref.X[i*ref.K+j]
-		if math.IsNaN(v) {
-			continue
-		}
-		pf.Min, pf.Max = math.Min(pf.Min, v), math.Max(pf.Max, v)
-		if v != 0 && v != 1 {
-			pf.Binary = false
-		}
-	}
+	var other int
+	pf.Min, pf.Max, other = columnSpan(ref, j)
+	pf.Binary = other < 0
 	if or.Data.N == 0 || math.IsInf(pf.Min, 1) {
 		return nil, fmt.Errorf("no observations to average over")
 	}
 	return pf, nil
+}
+
+// columnSpan gives the smallest and largest value of column j of ds (its
+// missing values left out) and the first row holding a value other than
+// 0 and 1 (-1 when there is none: a 0/1 column). It is the one reading of
+// whether a numeric column holds only 0 and 1, for the focus of the
+// predictions, a column of report.panels_by and the columns the
+// predictions hold at their mean share.
+func columnSpan(ds *data.Dataset, j int) (lo, hi float64, other int) {
+	lo, hi, other = math.Inf(1), math.Inf(-1), -1
+	for i := 0; i < ds.N; i++ {
+		v := ds.X[i*ds.K+j]
+		if math.IsNaN(v) {
+			continue
+		}
+		lo, hi = math.Min(lo, v), math.Max(hi, v)
+		if v != 0 && v != 1 && other < 0 {
+			other = i
+		}
+	}
+	return lo, hi, other
+}
+
+// zeroOne reports whether numeric column name holds only 0 and 1 in the
+// data as read (AsRead: on imputed data the observed values).
+func (or *OutcomeResult) zeroOne(name string) bool {
+	ref := or.AsRead()
+	j := slices.Index(ref.Predictors, name)
+	if j < 0 {
+		return false
+	}
+	lo, _, other := columnSpan(ref, j)
+	return other < 0 && !math.IsInf(lo, 1)
+}
+
+// PanelValues gives the values at which the report's predictions are
+// drawn once each for column by (report.panels_by): the coded levels of a
+// categorical column, "0" and "1" for a numeric column that holds only
+// those (run and check refuse any other, Analysis.checkPanels); nil when
+// by is "" or a column the outcome's terms do not read. zeroOne says
+// which of the two it is.
+func (or *OutcomeResult) PanelValues(by string) (values []string, zeroOne bool) {
+	if by == "" || or.Design == nil {
+		return nil, false
+	}
+	s := or.Design.Source(by)
+	switch {
+	case s < 0:
+		return nil, false
+	case or.Design.Sources[s].Cat != nil:
+		levels, _ := or.Design.Coded(s)
+		return levels, false
+	case or.zeroOne(by):
+		return []string{"0", "1"}, true
+	}
+	return nil, false
+}
+
+// HeldZeroOne lists the numeric columns the profile holds at their mean
+// although they hold only 0 and 1 in the data (not the focus, not a
+// column the caller fixed), each with that mean, the share of rows at 1
+// ("pilot 0.335063"): a value no single row has.
+func (pf *Profile) HeldZeroOne() (names, held []string) {
+	for s, src := range pf.or.Design.Sources {
+		if s == pf.s || src.Cat != nil || slices.Contains(pf.fixed, s) || !pf.or.zeroOne(src.Name) {
+			continue
+		}
+		names = append(names, src.Name)
+		held = append(held, fmt.Sprintf("%s %s", src.Name, numfmt.Num(pf.base[s])))
+	}
+	return names, held
 }
 
 // Grid gives the focus values: the level indices of a categorical focus,
@@ -153,6 +223,10 @@ func (pf *Profile) HeldAt() string {
 		}
 		if src.Cat != nil {
 			parts = append(parts, fmt.Sprintf("%s %s", src.Name, src.Cat.Levels[int(pf.base[s])]))
+			continue
+		}
+		if slices.Contains(pf.fixed, s) {
+			parts = append(parts, fmt.Sprintf("%s %s in this panel", src.Name, numfmt.Num(pf.base[s])))
 			continue
 		}
 		parts = append(parts, fmt.Sprintf("%s %s", src.Name, numfmt.Num(pf.base[s])))

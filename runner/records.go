@@ -123,6 +123,12 @@ type OutcomeDecisions struct {
 	// term cannot be computed for them (the log of 0, say), with the
 	// reason; absent when none.
 	NewRowsNotPredicted []NewRowNotPredicted `json:"new_rows_not_predicted,omitempty"`
+	// PredictionPanels: the panels of the report's predictions over the
+	// focus predictor (report.panels_by), the column and the values it is
+	// held at, one panel each (the first column of
+	// table-predicted-OUTCOME.csv); absent without panels or a chosen
+	// model.
+	PredictionPanels *PanelsRecord `json:"prediction_panels,omitempty"`
 	// Terms: how each predictor term became design columns, with every
 	// constant frozen from the data (omitted when every term is a numeric
 	// column as it is).
@@ -132,6 +138,31 @@ type OutcomeDecisions struct {
 	// FewClusters: the few-cluster correction of the outcome's clustered
 	// errors (absent without one).
 	FewClusters *FewClustersRecord `json:"few_cluster_correction,omitempty"`
+}
+
+// PanelsRecord is the column of report.panels_by and its values, each
+// the value of one panel of predictions: the levels of a categorical
+// column (kind levels), or 0 and 1 (kind zero_one).
+type PanelsRecord struct {
+	Column string   `json:"column"`
+	Kind   string   `json:"kind"`
+	Values []string `json:"values"`
+}
+
+// panelsRecord is the outcome's PanelsRecord, or nil.
+func panelsRecord(an *Analysis, or *OutcomeResult) *PanelsRecord {
+	if an == nil || or.Chosen == nil {
+		return nil
+	}
+	values, zeroOne := or.PanelValues(an.PanelsBy)
+	if values == nil {
+		return nil
+	}
+	kind := "levels"
+	if zeroOne {
+		kind = "zero_one"
+	}
+	return &PanelsRecord{Column: an.PanelsBy, Kind: kind, Values: values}
 }
 
 // FewClustersRecord says which covariance and references an outcome's
@@ -326,6 +357,7 @@ func BuildDecisions(r *Result) *Decisions {
 		od.Marginal = or.Marginal
 		od.LevelPairs = or.LevelPairs
 		od.ProfileOutside = or.ProfileOutside
+		od.PredictionPanels = panelsRecord(r.Analysis, or)
 		if or.NewRows != nil {
 			od.NewRowsOutside = or.NewRows.Flagged
 			od.NewRowsSkipped = SkippedNewRows(or.NewRows.Rows)

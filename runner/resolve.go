@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"ordplan/plan"
+	"ordplan/render/numfmt"
 	"ordplan/runner/data"
 	"ordplan/runner/design"
 	"ordplan/runner/fit"
@@ -58,6 +59,9 @@ type Analysis struct {
 	// plan's data's dialect, also when the data read are simulated.
 	NewRowsDialect data.Dialect
 	Level          float64
+	// PanelsBy is report.panels_by: the column whose values (levels, or
+	// 0 and 1) give the report's predictions a panel each ("" for none).
+	PanelsBy string
 }
 
 // Reading says how to read the data of one outcome and build its design.
@@ -244,7 +248,8 @@ func declaredBounds(dict []plan.Entry) map[string]*chained.Bounds {
 func ResolvePlan(p *plan.Plan) *Analysis {
 	a := &Analysis{Source: p.Path, Plan: true, DataFile: p.Data.Name(), DataPath: p.Data.Path,
 		Errors: covariancePolicy(p.Covariance, p.Data.Sampling(), p.FewClusters),
-		Models: p.Models, Tests: p.Tests, Rules: p.Rules, Inference: p.Inference, NewRowsDialect: p.Data.NewRowsDialect(), Level: p.Report.ConfidenceLevel}
+		Models: p.Models, Tests: p.Tests, Rules: p.Rules, Inference: p.Inference, NewRowsDialect: p.Data.NewRowsDialect(), Level: p.Report.ConfidenceLevel,
+		PanelsBy: p.Report.PanelsBy}
 	if p.Data.Parts != nil {
 		a.DataPaths, a.DataFiles = p.Data.PartPaths, p.Data.PartFiles
 	}
@@ -419,7 +424,39 @@ func (a *Analysis) Load(r Reading) (*Loaded, error) {
 		}
 		return nil, fmt.Errorf("%s%s: %v (data %s, outcome %q)", a.Source, r.termPlace(err), err, a.DataFile, r.Outcome)
 	}
+	if err := a.checkPanels(r, ds, dz); err != nil {
+		return nil, err
+	}
 	return &Loaded{Data: ds, Design: dz, FitData: d}, nil
+}
+
+// checkPanels refuses a numeric column of report.panels_by that holds a
+// value other than 0 and 1 in the data as read (ds; on imputed data the
+// observed values): the report draws one panel of predictions for each
+// level of a categorical column, or for 0 and for 1, and a panel at a
+// value of a numeric column chosen by ordplan would be a choice the plan
+// did not make. A column the outcome's terms do not read gets no panels
+// (another outcome's predictors may read it); the plan's check refuses a
+// column no term reads.
+func (a *Analysis) checkPanels(r Reading, ds *data.Dataset, dz *design.Design) error {
+	s := dz.Source(a.PanelsBy)
+	if a.PanelsBy == "" || s < 0 || dz.Sources[s].Cat != nil {
+		return nil
+	}
+	j := slices.Index(ds.Predictors, a.PanelsBy)
+	if j < 0 {
+		return nil
+	}
+	_, _, i := columnSpan(ds, j)
+	if i < 0 {
+		return nil
+	}
+	where := ds.File
+	if i < len(ds.Lines) {
+		where = ds.Where(ds.Lines[i])
+	}
+	return fmt.Errorf("%s: report.panels_by: column %q holds %s (%s), but a numeric column named by panels_by must hold only 0 and 1 (a panel of predictions at each); declare it under categorical for a panel per value, or leave panels_by out (outcome %q)",
+		a.Source, a.PanelsBy, numfmt.Num(ds.X[i*ds.K+j]), where, r.Outcome)
 }
 
 // Observed refuses data in which a declared category of the outcome has no
