@@ -78,7 +78,10 @@ func TestChanceTermTests(t *testing.T) {
 
 	inter := strings.Replace(base, "predictors: [x, g]", "predictors: [x, g, {interact: [g, x]}]", 1)
 	md = string(renderSource(t, dir, inter, 1)["report.md"])
-	hasAll(t, "tests of each term (g&x)", termsOf(md), causal+" Tested together with g&x, its test asks whether the assignment changed the outcome for any value of x. Its own slopes estimate the effect of the assignment only where x = 0 (the other terms of the interaction at their reference, their columns at 0), and those of g&x how that effect differs with x: for whom the assignment changed the outcome more or less, not what x causes. The own slopes of x (where g = a) describe an association, not an effect of x, and its test, made with the same interaction, is not a test of an effect of x.", others)
+	if strings.Contains(md, "for any value of") {
+		t.Error("the test of a term assigned by chance, with its interaction, is said to ask about any value of the other term: more than a test within the model shows")
+	}
+	hasAll(t, "tests of each term (g&x)", termsOf(md), causal+" Tested together with g&x, its test asks whether the assignment changed the outcome at all, within the model: its hypothesis is that its slopes and those of g&x are all 0, no effect of the assignment at any value of x among the effects the model allows (one that changes with x only as the columns of g&x let it), and a small p-value does not say at which values of x the assignment changed the outcome. The test of g&x on its own asks whether the effect of the assignment differs with x, within the model and on the model's scale: a large p-value does not show that the effect is the same at every value of x, only that these data show no difference of the form the model gives. Its own slopes estimate the effect of the assignment only where x = 0 (the other terms of the interaction at their reference, their columns at 0), and those of g&x how that effect differs with x: for whom the assignment changed the outcome more or less, not what x causes. The own slopes of x (where g = a) describe an association, not an effect of x, and its test, made with the same interaction, is not a test of an effect of x.", others)
 	hasAll(t, "Methods (g&x)", methodsOf(md), methods+interaction+"; their p-values")
 
 	// Without assigned_by_chance every term is an association.

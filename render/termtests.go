@@ -137,7 +137,10 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 // slopes estimate the effect of the assignment given the other terms,
 // which holds if those were measured before the assignment; where it
 // enters an interaction its test (with the interactions) asks whether the
-// assignment changed the outcome anywhere, its own slopes give the effect
+// assignment changed the outcome at all within the model (not where), the
+// interaction's own test whether that effect differs with the other terms
+// within the model (a large p-value not showing it the same everywhere),
+// its own slopes give the effect
 // where the other terms of the interaction have their columns at 0 (their
 // reference), and the other terms' own effects stay associations.
 func chanceTermsText(r *runner.Result, or *runner.OutcomeResult) string {
@@ -195,8 +198,8 @@ func chanceTermsText(r *runner.Result, or *runner.OutcomeResult) string {
 			own = " (where " + words.AndList(partnersAt) + ")"
 		}
 		p := words.AndList(partners)
-		s += fmt.Sprintf(" Tested together with %s, its test asks whether the assignment changed the outcome for any value of %s. Its own slopes estimate the effect of the assignment only %s, and those of %s how that effect differs with %s: for whom the assignment changed the outcome more or less, not what %s causes. The own slopes of %s%s describe an association, not an effect of %s, and its test, made with the same interaction, is not a test of an effect of %s.",
-			words.AndList(with), p, at, words.AndList(with), p, p, p, own, p, p)
+		s += fmt.Sprintf(" Tested together with %s, its test asks whether the assignment changed the outcome at all, within the model: its hypothesis is that its slopes and those of %s are all 0, no effect of the assignment at any value of %s among the effects the model allows (one that changes with %s only as the columns of %s let it), and a small p-value does not say at which values of %s the assignment changed the outcome. The test of %s on its own asks whether the effect of the assignment differs with %s, within the model and on the model's scale: a large p-value does not show that the effect is the same at every value of %s, only that these data show no difference of the form the model gives. Its own slopes estimate the effect of the assignment only %s, and those of %s how that effect differs with %s: for whom the assignment changed the outcome more or less, not what %s causes. The own slopes of %s%s describe an association, not an effect of %s, and its test, made with the same interaction, is not a test of an effect of %s.",
+			words.AndList(with), words.AndList(with), p, p, words.AndList(with), p, words.AndList(with), p, p, at, words.AndList(with), p, p, p, own, p, p)
 		out = append(out, s)
 	}
 	return strings.Join(out, " ")
