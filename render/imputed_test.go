@@ -153,6 +153,9 @@ func TestImputedReport(t *testing.T) {
 		"| Brant (all predictors) (pooled, D1) |",
 		"| Score (all predictors) (pooled, D2) |",
 		"On imputed data the curves and the table below are at the pooled estimates",
+		// The Summary says what the choice rests on: BIC averaged over
+		// the sets (the plan's one rule, choose by bic).
+		"This choice rests on the 4 imputed sets taken together: the rules compared BIC averaged over the sets (the mean of each set's value), so that no one set's fit made it (see Multiple imputation).",
 		"every model was fitted on each complete imputed set",
 		// The limits name the assumption pooling rests on and the
 		// uncertainty of the selection the pooled tests leave out.

@@ -116,6 +116,7 @@ func writeSummary(d *doc, r *runner.Result) {
 			if s := negativeRows(or.Chosen.Result); s != "" {
 				item += fmt.Sprintf(" **This model %s** (its cumulative probabilities cross; see the chosen model's section).", s)
 			}
+			item += pooledChoice(or)
 			item += chosenChecks(r, or)
 			item += summaryHypotheses(r, or)
 		}
@@ -146,6 +147,53 @@ func writeSummary(d *doc, r *runner.Result) {
 	default:
 		d.p("The sections below give the data, every candidate model, the tests, each decision rule's verdict on each model, and then the chosen model's estimates, predicted probabilities and marginal effects. report.html holds the same text with charts.")
 	}
+}
+
+// pooledTestWords names the test rules' tests and how each is pooled over
+// imputed sets, by test kind (runner/pooledtests.go: likelihood ratios by D3, Wald
+// and Brant tests by D1, score and Wolfe-Gould tests by D2).
+var pooledTestWords = map[fit.TestKind]string{
+	fit.TestLR:         "likelihood-ratio tests (D3)",
+	fit.TestWald:       "Wald tests (D1)",
+	fit.TestBrant:      "Brant tests (D1)",
+	fit.TestScore:      "score tests (D2)",
+	fit.TestWolfeGould: "Wolfe-Gould tests (D2)",
+}
+
+// pooledChoice says, for the Summary, that on imputed data the rules
+// chose from the imputed sets taken together: the criteria they compared
+// are means over the sets of each set's value, and the tests they read
+// are pooled over the sets, so that no one set's fit made the choice; ""
+// on data that were not imputed, or when no rule read a criterion or a
+// test.
+func pooledChoice(or *runner.OutcomeResult) string {
+	if or.Imputed == nil {
+		return ""
+	}
+	var criteria, tests []string
+	for _, ro := range or.Rules {
+		switch ro.Rule.Kind {
+		case plan.RuleChoose, plan.RulePreferSimpler:
+			if c := strings.ToUpper(ro.Rule.By); !slices.Contains(criteria, c) {
+				criteria = append(criteria, c)
+			}
+		case plan.RuleRejectIfTestRejects:
+			if w := pooledTestWords[ro.Rule.Test]; w != "" && !slices.Contains(tests, w) {
+				tests = append(tests, w)
+			}
+		}
+	}
+	var read []string
+	if len(criteria) > 0 {
+		read = append(read, "compared "+words.AndList(criteria)+" averaged over the sets (the mean of each set's value)")
+	}
+	if len(tests) > 0 {
+		read = append(read, "read "+words.AndList(tests)+" pooled over the sets")
+	}
+	if len(read) == 0 {
+		return ""
+	}
+	return fmt.Sprintf(" This choice rests on the %d imputed sets taken together: the rules %s, so that no one set's fit made it (see Multiple imputation).", or.Imputed.M, strings.Join(read, " and "))
 }
 
 // summaryHypotheses gives, for the Summary, the plan's hypotheses as

@@ -46,6 +46,9 @@ rules:
 		"| cumulative/parallel/logit within cumulative/nonparallel/logit |  | "+why+" |",
 		"The parallel-lines assumption was tested by Wald tests (alpha = 0.05), overall and for each predictor.",
 		"The likelihood-ratio, score and Brant tests of the parallel-lines assumption the plan asks for were not computed: with sampling weights",
+		// The Summary: the choice rests on TIC averaged over the sets
+		// and on the pooled Wald tests.
+		"This choice rests on the 3 imputed sets taken together: the rules compared TIC averaged over the sets (the mean of each set's value) and read Wald tests (D1) pooled over the sets, so that no one set's fit made it (see Multiple imputation).",
 	)
 	for _, bad := range []string{"(pooled, D3) |", "Brant (all predictors) (pooled, D1)", "Score (all predictors) (pooled, D2)"} {
 		if strings.Contains(md, bad) {
