@@ -472,6 +472,7 @@ func writeLimits(d *doc, r *runner.Result) {
 		selectionSentence(r),
 		hypothesisChoiceSentence(r),
 		chosenSentence(r, "Standard errors of predicted probabilities and marginal effects use the delta method: they are first-order approximations."),
+		fewPerParameterSentence(r),
 		multiplicitySentence(r),
 		limitIf(len(r.Sensitivity) > 0, sensitivityLimit(r)),
 	}
@@ -585,6 +586,42 @@ func chosenSentence(r *runner.Result, s string) string {
 		}
 	}
 	return ""
+}
+
+// fewPerParameter is the number of observations per parameter of a chosen
+// model below which the limits say that its large-sample inference is
+// rough (the number the example plan's reject_if_sparse asks for).
+const fewPerParameter = 10
+
+// fewPerParameterSentence says, of each outcome whose chosen model has
+// fewer than fewPerParameter observations per parameter (the observations
+// as the fit counts them: the rows, or the sum of frequency weights), that
+// its errors, tests and intervals rest on approximations so few
+// observations support poorly; "" when there is none. A plan without a
+// reject_if_sparse rule chose such a model without a word.
+func fewPerParameterSentence(r *runner.Result) string {
+	var parts []string
+	for _, or := range r.Outcomes {
+		ch := or.Chosen
+		if ch == nil || ch.Result == nil || ch.Result.NParams == 0 {
+			continue
+		}
+		res := ch.Result
+		per := res.NObs / float64(res.NParams)
+		if per >= fewPerParameter {
+			continue
+		}
+		parts = append(parts, fmt.Sprintf("%s of %s has %d parameters for %s observations (%s per parameter)",
+			mdText(ch.ID), mdCode(or.Outcome.Column), res.NParams, numfmt.Num(res.NObs), numfmt.Num(per)))
+	}
+	if len(parts) == 0 {
+		return ""
+	}
+	model, its := "The chosen model ", "Its"
+	if len(parts) > 1 {
+		model, its = "The chosen models: ", "Their"
+	}
+	return model + words.AndList(parts) + fmt.Sprintf(", fewer than %d. %s standard errors, tests, p-values and intervals rest on large-sample approximations that so few observations per parameter support poorly: the slopes of maximum likelihood then tend to lie too far from 0 and the intervals to be too narrow; read them as rough. A rule `reject_if_sparse: {per_parameter: %d}` makes such a model rejected, so that a simpler one (or none) is chosen.", fewPerParameter, its, fewPerParameter)
 }
 
 // boundariesSentence is s when some outcome has more than two categories

@@ -444,3 +444,34 @@ rules:
 		t.Fatalf("no candidate without a finite maximum:\n%s", files["table-models-y.csv"])
 	}
 }
+
+// TestLimitsSayFewObservationsPerParameter: a chosen model of 5
+// parameters fitted to 8 rows (a plan without reject_if_sparse) is said in
+// Assumptions and limits to rest on large-sample approximations those
+// rows support poorly; the golden run (300 rows) says nothing of it.
+func TestLimitsSayFewObservationsPerParameter(t *testing.T) {
+	dir := t.TempDir()
+	rows := "y,a,b\n3,0.675,0.665\n3,-1.579,0.51\n1,0.2,-0.3\n2,1.1,0.9\n1,-0.4,1.2\n2,0.3,-1.1\n3,1.9,0.2\n1,-1.2,-0.6\n"
+	if err := os.WriteFile(filepath.Join(dir, "tiny.csv"), []byte(rows), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	src := `version: 1
+title: tiny
+data: {file: ` + filepath.Join(dir, "tiny.csv") + `}
+outcomes: [{column: y, categories: [1, 2, 3]}]
+predictors: [a, b]
+models: {approaches: [cumulative], effects: [parallel]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: bic}
+`
+	files := renderSource(t, t.TempDir(), src, 1)
+	want := "The chosen model cumulative/parallel/logit of `y` has 4 parameters for 8 observations (2 per parameter), fewer than 10. Its standard errors, tests, p-values and intervals rest on large-sample approximations"
+	if md := string(files["report.md"]); !strings.Contains(md, want) {
+		t.Errorf("report.md lacks %q", want)
+	}
+	golden := outputsOf(t, runPlan(t, goldenPlan, 2))
+	if md := string(golden["report.md"]); strings.Contains(md, "per parameter), fewer than") {
+		t.Errorf("the golden report speaks of few observations per parameter")
+	}
+}

@@ -325,6 +325,19 @@ func mistakeItems(dir string) []badInput {
 					t.Errorf("init: want %q in\n%s", want, b)
 				}
 			}},
+		{id: "M22", name: "a chosen model with fewer than 10 observations per parameter, in a plan without reject_if_sparse", args: []string{"run"}, code: 0,
+			plan: edit("  file: d.csv\n", "  file: M22.csv\n"),
+			setup: func(t *testing.T, dir, id string) {
+				if err := os.WriteFile(filepath.Join(dir, id+".csv"), []byte("y,a,b\n3,0.675,0.665\n3,-1.579,0.51\n1,0.2,-0.3\n2,1.1,0.9\n1,-0.4,1.2\n2,0.3,-1.1\n3,1.9,0.2\n1,-1.2,-0.6\n"), 0o644); err != nil {
+					t.Fatal(err)
+				}
+			},
+			check: func(t *testing.T, dir, out, errs string) {
+				md, err := os.ReadFile(filepath.Join(dir, "M22-out", "report.md"))
+				if want := "parameters for 8 observations (2 per parameter), fewer than 10. Its standard errors, tests, p-values and intervals rest on large-sample approximations that so few observations per parameter support poorly"; err != nil || !strings.Contains(string(md), want) {
+					t.Errorf("report.md lacks %q (%v)", want, err)
+				}
+			}},
 		{id: "P66", name: "ordplan init into a folder that does not exist", args: []string{"init", filepath.Join(dir, "P66-nodir", "x.yaml"), "--data", filepath.Join(dir, "d.csv")}, code: 1,
 			want:  []string{"ordplan: init: cannot write P66-nodir/x.yaml: the folder P66-nodir does not exist: make it first, or give another path"},
 			check: noFolder("P66-nodir")},
