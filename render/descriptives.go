@@ -151,9 +151,9 @@ func writeDescriptives(d *doc, or *runner.OutcomeResult, sampling bool) {
 				case s.Counts:
 					row = append(row, fmt.Sprintf("%s (%s%%)", numfmt.Num(s.Ones[c]), numfmt.Fixed(100*s.Mean[c], 1)))
 				case missing:
-					row = append(row, fmt.Sprintf("%s (%s), %s rows", numfmt.Fixed(s.Mean[c], 3), numfmt.Fixed(s.SD[c], 3), numfmt.Num(s.N[c])))
+					row = append(row, fmt.Sprintf("%s (%s), %s rows", numfmt.Summary(s.Mean[c]), numfmt.Summary(s.SD[c]), numfmt.Num(s.N[c])))
 				default:
-					row = append(row, fmt.Sprintf("%s (%s)", numfmt.Fixed(s.Mean[c], 3), numfmt.Fixed(s.SD[c], 3)))
+					row = append(row, fmt.Sprintf("%s (%s)", numfmt.Summary(s.Mean[c]), numfmt.Summary(s.SD[c])))
 				}
 			}
 			rows = append(rows, row)

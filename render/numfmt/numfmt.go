@@ -80,15 +80,29 @@ const (
 // Est formats an estimate, a standard error or an interval bound with
 // EstimateDecimals decimals; a non-zero value too small to show a digit
 // there, or too large to read, is written in scientific notation.
-func Est(x float64) string {
+func Est(x float64) string { return fixedOrScientific(x, EstimateDecimals) }
+
+// SummaryDecimals is the decimals of a mean or standard deviation of the
+// data (the predictors by outcome category).
+const SummaryDecimals = 3
+
+// Summary formats a mean or standard deviation of the data with
+// SummaryDecimals decimals, or in scientific notation as Est does: a
+// column measured in units of 1e-12 reads 1.027e-12 (7.891e-13), not
+// 0.000 (0.000), which looked constant.
+func Summary(x float64) string { return fixedOrScientific(x, SummaryDecimals) }
+
+// fixedOrScientific writes x with d decimals; a non-zero value too small
+// to show a digit there, or of 1e9 or more, in scientific notation.
+func fixedOrScientific(x float64, d int) string {
 	a := math.Abs(x)
 	if math.IsNaN(x) || math.IsInf(x, 0) {
 		return Num(x)
 	}
-	if (a > 0 && a < 0.5e-4) || a >= 1e9 {
+	if (a > 0 && a < 0.5/math.Pow(10, float64(d))) || a >= 1e9 {
 		return fmt.Sprintf("%.3e", x)
 	}
-	return Fixed(x, EstimateDecimals)
+	return Fixed(x, d)
 }
 
 // RatioDecimals is the fewest decimals of an odds ratio (or another ratio

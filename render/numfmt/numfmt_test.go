@@ -171,3 +171,25 @@ func TestRatios(t *testing.T) {
 		}
 	}
 }
+
+// TestSummary: a mean or SD of the data keeps three decimals, and a
+// column in units of 1e-12 (or 1e12) is written in scientific notation,
+// not 0.000, which read as a constant column; Est keeps its own bounds.
+func TestSummary(t *testing.T) {
+	for _, c := range []struct {
+		x    float64
+		want string
+	}{
+		{0.4884, "0.488"}, {-1.5, "-1.500"}, {0, "0.000"}, {0.0005, "0.001"}, {0.0004999, "4.999e-04"},
+		{-3.03e-13, "-3.030e-13"}, {1.001e12, "1.001e+12"}, {123456.7, "123456.700"},
+	} {
+		if got := Summary(c.x); got != c.want {
+			t.Errorf("Summary(%g) = %q, want %q", c.x, got, c.want)
+		}
+	}
+	for x, want := range map[float64]string{0.00005: "0.0001", 0.0000499: "4.990e-05", 1e9: "1.000e+09", 12.34567: "12.3457"} {
+		if got := Est(x); got != want {
+			t.Errorf("Est(%g) = %q, want %q", x, got, want)
+		}
+	}
+}
