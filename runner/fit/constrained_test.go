@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -366,6 +367,11 @@ func TestPhiWhenEquationOneSlopesVanish(t *testing.T) {
 		}
 		if !math.IsNaN(res.Phi[0][1]) {
 			t.Errorf("phi in the normalization phi_1 = 1 should be NaN: %v", res.Phi)
+		}
+		// The message gives phi in that normalization itself: it named
+		// PhiOther, a field no output shows.
+		if want := fmt.Sprintf("normalized by equation 2 instead (phi_2 = 1), phi is (%s, 1)", strconv.FormatFloat(o.Phi[0], 'g', 4, 64)); !strings.Contains(res.Message, want) || strings.Contains(res.Message, "PhiOther") {
+			t.Errorf("message %q, want %q", res.Message, want)
 		}
 		for i, n := range res.ParamNames {
 			if strings.HasPrefix(n, "tau[") && !near(res.StdErrors[i], part.StdErrors[i], 1e-6, 1e-9) {

@@ -3,6 +3,7 @@ package fit
 import (
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 )
 
@@ -414,7 +415,11 @@ func (r *Result) setRidgeGroups(predictors []string, ly, pLy *layout, rm rankMap
 			alt.GammaSE = append(alt.GammaSE, math.Sqrt(cov[s*P+s]))
 		}
 		r.PhiOther = append(r.PhiOther, alt)
-		why = append(why, fmt.Sprintf("phi %s is not identified in the normalization phi_1 = 1: at the maximum its slopes in equation 1 vanish (phi_1 = %.2g when phi_%d = 1), so phi_m = b_m / b_1 is unbounded; PhiOther gives phi normalized by equation %d", groupLabel(ly, g), alt.Phi[0], refs[g]+1, refs[g]+1))
+		phis := make([]string, len(alt.Phi))
+		for j, v := range alt.Phi {
+			phis[j] = strconv.FormatFloat(v, 'g', 4, 64)
+		}
+		why = append(why, fmt.Sprintf("phi %s is not identified in the normalization phi_1 = 1: at the maximum its slopes in equation 1 vanish (phi_1 = %.2g when phi_%d = 1), so phi_m = b_m / b_1 is unbounded; normalized by equation %d instead (phi_%d = 1), phi is (%s)", groupLabel(ly, g), alt.Phi[0], refs[g]+1, refs[g]+1, refs[g]+1, strings.Join(phis, ", ")))
 	}
 	return drop, why
 }
