@@ -185,7 +185,7 @@ func (d *decoder) finishSensitivity(r *sensitivityRead, p *Plan) {
 			continue
 		}
 		for _, e := range r.errs[i] {
-			d.sensitivityError(e, s, changes, primaryErrs)
+			d.sensitivityError(e, s, primaryErrs)
 		}
 		if len(r.errs[i]) > 0 || s.Name == "" || s.Why == "" {
 			continue
@@ -304,13 +304,10 @@ func notChangeable(key string) string {
 // the primary plan's: inside a change, named at the change's key; else,
 // unless the primary plan has it too, at its own key, with the analysis
 // that brings it.
-func (d *decoder) sensitivityError(e *Error, s Sensitivity, changes []change, primary Errors) {
-	for _, c := range changes {
-		if e.Key == c.key || strings.HasPrefix(e.Key, c.key+".") || strings.HasPrefix(e.Key, c.key+"[") {
-			d.errs = append(d.errs, &Error{File: e.File, Line: e.Line, Col: e.Col,
-				Key: s.Key + ".change." + e.Key, Msg: fmt.Sprintf("in sensitivity analysis %s: %s", quote(s.Name), e.Msg)})
-			return
-		}
+func (d *decoder) sensitivityError(e *Error, s Sensitivity, primary Errors) {
+	if ce, ok := s.InChange(e); ok {
+		d.errs = append(d.errs, ce)
+		return
 	}
 	for _, pe := range primary {
 		if pe.Key == e.Key && pe.Line == e.Line && pe.Col == e.Col && pe.Msg == e.Msg {
@@ -331,6 +328,31 @@ func (d *decoder) sensitivityError(e *Error, s Sensitivity, changes []change, pr
 	}
 	d.errs = append(d.errs, &Error{File: e.File, Line: e.Line, Col: e.Col, Key: e.Key,
 		Msg: fmt.Sprintf("with %s applied: %s%s", s.Title(), e.Msg, hint)})
+}
+
+// InChange names a problem e of the analysis's plan that lies inside one
+// of its changes (e's key is a changed key or below one) at its key under
+// the analysis, sensitivity[1].change.subset[0].column, with the analysis
+// named: the one form of such a problem, found by the plan's checks or
+// against the data (runner.CheckData, a run). Not ok: e is elsewhere.
+func (s Sensitivity) InChange(e *Error) (*Error, bool) {
+	key, ok := s.ChangeKey(e.Key)
+	if !ok {
+		return nil, false
+	}
+	return &Error{File: e.File, Line: e.Line, Col: e.Col, Key: key, Msg: fmt.Sprintf("in sensitivity analysis %s: %s", quote(s.Name), e.Msg)}, true
+}
+
+// ChangeKey is key, a key of the analysis's plan, under the change that
+// sets it (sensitivity[1].change.subset[0].column for subset[0].column);
+// not ok when no change of the analysis sets it.
+func (s Sensitivity) ChangeKey(key string) (string, bool) {
+	for _, c := range s.Changes {
+		if key == c || strings.HasPrefix(key, c+".") || strings.HasPrefix(key, c+"[") {
+			return s.Key + ".change." + key, true
+		}
+	}
+	return "", false
 }
 
 // derivePlan reads the primary plan's text root with the changes written

@@ -17,6 +17,10 @@ import (
 type CategoricalColumn struct {
 	Column string
 	Key    string // plan key, e.g. categorical.site
+	// LevelsLine and LevelsCol are where the plan writes the levels (0:
+	// not from a plan file): a problem of the levels against the data
+	// (one that no row used has) is named there.
+	LevelsLine, LevelsCol int
 	design.Categorical
 }
 
@@ -42,6 +46,7 @@ func (d *decoder) decodeCategorical(n *yaml.Node) []CategoricalColumn {
 			return
 		}
 		if v := m.required("levels"); v != nil {
+			c.LevelsLine, c.LevelsCol = deref(v).Line, deref(v).Column
 			if list, ok := d.names(v, m.at("levels")); ok && d.clean(m.at("levels")) {
 				c.Levels = list
 			}

@@ -70,6 +70,11 @@ func CheckData(p *plan.Plan) ([]string, error) {
 	// of its own.
 	for _, s := range p.Sensitivity {
 		w, err := CheckData(s.OnData(p))
+		if pe, ok := err.(*plan.Error); ok {
+			if ce, ok := s.InChange(pe); ok {
+				return nil, ce
+			}
+		}
 		if err != nil {
 			return nil, fmt.Errorf("%s: %s: %w", p.Path, s.Title(), err)
 		}

@@ -76,6 +76,9 @@ type Reading struct {
 	// ColumnKeys names the plan key behind a column the reader may refuse
 	// (categorical predictors, subset conditions); nil for flags.
 	ColumnKeys map[string]string
+	// levelsAt is where the plan declares each categorical column's
+	// levels; nil for flags.
+	levelsAt map[string]*plan.Error
 }
 
 // CovariancePolicy says which standard errors the fits report. Sampling
@@ -273,6 +276,10 @@ func ResolvePlan(p *plan.Plan) *Analysis {
 		for _, col := range readColumns(r.Options) {
 			if c := p.CategoricalOf(col); c != nil {
 				r.setKey(col, c.Key)
+				if r.levelsAt == nil {
+					r.levelsAt = map[string]*plan.Error{}
+				}
+				r.levelsAt[col] = &plan.Error{File: p.Path, Line: c.LevelsLine, Col: c.LevelsCol, Key: c.Key + ".levels"}
 			}
 		}
 		for _, k := range p.Subset {
@@ -422,7 +429,7 @@ func (a *Analysis) Load(r Reading) (*Loaded, error) {
 		if !a.Plan {
 			return nil, fmt.Errorf("%s: %v", a.DataFile, err)
 		}
-		return nil, fmt.Errorf("%s%s: %v (data %s, outcome %q)", a.Source, r.termPlace(err), err, a.DataFile, r.Outcome)
+		return nil, r.designError(a, err)
 	}
 	if err := a.checkPanels(r, ds, dz); err != nil {
 		return nil, err
@@ -676,6 +683,22 @@ func (a *Analysis) checkGridLevels(r Reading, dz *design.Design) error {
 		return errs
 	}
 	return nil
+}
+
+// designError is a plan's design error err on the outcome's data, named
+// where the plan says what it is about: a problem of a categorical
+// column's declared levels at those levels (categorical.COLUMN.levels, a
+// *plan.Error, which a sensitivity analysis that changes them names at
+// its change: plan.Sensitivity.InChange), any other at its term.
+func (r Reading) designError(a *Analysis, err error) error {
+	var de *design.Error
+	if errors.As(err, &de) && de.Levels && r.levelsAt[de.Column] != nil {
+		e, at := *de, *r.levelsAt[de.Column]
+		e.Key = ""
+		at.Msg = fmt.Sprintf("%v (data %s, outcome %q)", &e, a.DataFile, r.Outcome)
+		return &at
+	}
+	return fmt.Errorf("%s%s: %v (data %s, outcome %q)", a.Source, r.termPlace(err), err, a.DataFile, r.Outcome)
 }
 
 // termPlace is ":LINE:COL" of the plan's term a design error is about, or

@@ -39,6 +39,14 @@ func runSensitivity(p *plan.Plan, opt Options) []*SensitivityResult {
 		}
 		sr := &SensitivityResult{Sensitivity: s}
 		res, err := Run(s.OnData(p), sopt)
+		if pe, ok := err.(*plan.Error); ok {
+			// Named where the analysis changes the key; the record and
+			// the warning name the analysis.
+			if key, ok := s.ChangeKey(pe.Key); ok {
+				e := *pe
+				e.Key, err = key, &e
+			}
+		}
 		if err != nil {
 			sr.Err = folderFree(err.Error(), p)
 		} else {

@@ -163,7 +163,7 @@ func termItems(dir string) []badInput {
 			want: []string{`cat.csv: column "x": the subset keeps no rows: all 60 data rows fail its conditions (outside the subset x > 1000: 60)`, `plan key subset[0]`}},
 		{id: "T6", name: "declared level never observed", args: []string{"run"}, setup: writeTermsData,
 			plan: termsEdit("[north, east, south]", "[north, east, south, west]"), code: 1,
-			want: []string{`T6.yaml:6:14: predictors[0]: column "site": level "west" is declared but occurs in no row used; remove it from the levels, or have its column dropped (in a plan unobserved: drop, in ordplan fit |drop)`}},
+			want: []string{`T6.yaml:5:18: categorical.site.levels: column "site": level "west" is declared but occurs in no row used; remove it from the levels, or have its column dropped (in a plan unobserved: drop, in ordplan fit |drop)`}},
 		{id: "T7", name: "declared level never observed, dropped as the plan says", args: []string{"run"}, setup: writeTermsData,
 			plan: termsEdit("[north, east, south]}", "[north, east, south, west], unobserved: drop}"), code: 0,
 			check: func(t *testing.T, dir, out, errs string) {

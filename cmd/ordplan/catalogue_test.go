@@ -995,6 +995,23 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("run: exit %d\n%s\n%s", code, stdout, stderr)
 				}
 			}},
+		{id: "P75", name: "a sensitivity analysis declaring a categorical level no row used has", args: []string{"check"}, code: 1, setup: writeTermsData,
+			plan: termsPlan + "sensitivity:\n  - name: with_west\n    why: w\n    change:\n      categorical:\n        site: {levels: [north, east, south, west]}\n",
+			want: []string{`P75.yaml:16:24: sensitivity[0].change.categorical.site.levels: in sensitivity analysis "with_west": column "site": level "west" is declared but occurs in no row used; remove it from the levels, or have its column dropped (in a plan unobserved: drop, in ordplan fit |drop) (data cat.csv, outcome "y")` + "\n"},
+			check: func(t *testing.T, dir, out, errs string) {
+				// run names it at the change too, in its warning, the
+				// report and decisions.json, and exits 3.
+				o := filepath.Join(dir, "P75-out")
+				stdout, stderr, code := runCLI("run", filepath.Join(dir, "P75.yaml"), "--out", o, "--quiet")
+				rep, _ := os.ReadFile(filepath.Join(o, "report.md"))
+				dec, _ := os.ReadFile(filepath.Join(o, "decisions.json"))
+				at := `P75.yaml:16:24: sensitivity[0].change.categorical.site.levels: column "site": level "west" is declared but occurs in no row used`
+				if code != 3 || !strings.Contains(stdout, "sensitivity analysis with_west: could not be run") ||
+					!strings.Contains(stderr, `sensitivity analysis "with_west" (sensitivity[0], line 12) could not be run: `+at) ||
+					!strings.Contains(string(rep), "**The sensitivity analysis with_west could not be run:** "+at) || !strings.Contains(string(dec), `"error": "`+strings.ReplaceAll(at, `"`, `\"`)) {
+					t.Errorf("run: exit %d\n%s\n%s", code, stdout, stderr)
+				}
+			}},
 		{id: "P60", name: "a sensitivity analysis whose change is not a mapping of keys, or is empty", args: []string{"check", "--no-data"}, code: 1, lines: true,
 			plan: goodPlan + "sensitivity:\n  - name: s\n    why: w\n    change: covariance\n  - name: t\n    why: w\n    change: {}\n",
 			want: []string{`P60.yaml:17:13: sensitivity[0].change: want a mapping of the keys it changes (one or more of data.missing, data.imputation, data.cluster, subset, categorical, predictors, models.partial, models.links, covariance, few_clusters) to their values; got string "covariance"`,

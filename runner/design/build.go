@@ -82,6 +82,10 @@ type Error struct {
 	Line   int    // data line, 0 when none
 	Column string // raw column
 	Msg    string
+	// Levels: the problem is the column's declared levels against the
+	// rows used (a level or the reference that no row has, one level
+	// alone), which a plan names where it declares them.
+	Levels bool
 }
 
 func (e *Error) Error() string {
@@ -280,16 +284,16 @@ func (d *Design) buildCategorical(t *Term, src Source, v, w []float64, fz *TermR
 		}
 		switch {
 		case name == ref:
-			return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("the reference level %q occurs in no row used; choose another reference", name)}
+			return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("the reference level %q occurs in no row used; choose another reference", name), Levels: true}
 		case c.Unobserved == UnobservedDrop:
 			t.Dropped = append(t.Dropped, name)
 			d.Notes = append(d.Notes, fmt.Sprintf("Level %q of %s occurs in no row used; its column was dropped, as asked (%s).", name, src.Name, t.Key))
 		default:
-			return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("level %q is declared but occurs in no row used; remove it from the levels, or have its column dropped (in a plan unobserved: drop, in ordplan fit |drop)", name)}
+			return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("level %q is declared but occurs in no row used; remove it from the levels, or have its column dropped (in a plan unobserved: drop, in ordplan fit |drop)", name), Levels: true}
 		}
 	}
 	if len(keptIdx) < 2 {
-		return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("only one level (%q) occurs in the rows used; a categorical predictor needs two", c.Levels[keptIdx[0]])}
+		return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("only one level (%q) occurs in the rows used; a categorical predictor needs two", c.Levels[keptIdx[0]]), Levels: true}
 	}
 	for _, l := range keptIdx {
 		t.Kept = append(t.Kept, c.Levels[l])
