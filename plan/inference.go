@@ -9,6 +9,7 @@ import (
 
 	"gopkg.in/yaml.v3"
 
+	"ordplan/runner/design"
 	"ordplan/runner/fit"
 )
 
@@ -104,8 +105,23 @@ var (
 	termTestWords       = []string{TermTestsBoth, TermTestsWald, TermTestsLR, TermTestsNone}
 )
 
-// decodeInference reads the inference section.
-func (d *decoder) decodeInference(n *yaml.Node, inf *Inference, dir string) {
+// unnamable says, of a hypothesis that cannot be read, which terms it
+// names hold a character that breaks a hypothesis's names (a term of a
+// column named with a space is allowed, its name being the column's), and
+// how to name them; "" when none does.
+func unnamable(text string, terms []design.TermSpec) string {
+	var out []string
+	for _, t := range terms {
+		if bad := design.BadNameChars(t.Name); bad != "" && strings.Contains(text, t.Name) {
+			out = append(out, fmt.Sprintf("; term %s holds %s, which a hypothesis cannot name: give the term a name of its own, {name: NAME, column: %s}, and use that name", quote(t.Name), bad, quote(t.Source)))
+		}
+	}
+	return strings.Join(out, "")
+}
+
+// decodeInference reads the inference section; terms are the plan's
+// terms, which a hypothesis that cannot be read may name (unnamable).
+func (d *decoder) decodeInference(n *yaml.Node, inf *Inference, dir string, terms []design.TermSpec) {
 	inf.MarginalEffects = []string{"average"}
 	inf.Multiplicity = MultiplicityNone
 	inf.TermTests = TermTestsBoth
@@ -130,7 +146,7 @@ func (d *decoder) decodeInference(n *yaml.Node, inf *Inference, dir string) {
 					// checkHypothesisNames; a name some candidates have
 					// and others not is tested in those that have it.
 					if err := fit.CheckHypothesisText(s); err != nil {
-						d.errorf(deref(it), path, "%v", err)
+						d.errorf(deref(it), path, "%v%s", err, unnamable(s, terms))
 					}
 					inf.Hypotheses = append(inf.Hypotheses, Hypothesis{Text: s, Line: deref(it).Line, Col: deref(it).Column})
 				}

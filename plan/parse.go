@@ -11,6 +11,7 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 	"unicode/utf8"
@@ -338,7 +339,11 @@ func (d *decoder) decodePlan(root *yaml.Node, p *Plan) {
 	typedWord(m, "covariance", "covariance", fit.CovarianceWords, fit.CovarianceWords.All(), &p.Covariance)
 	typedWord(m, "few_clusters", "few-cluster correction", fit.ClusterCorrectionWords, fit.ClusterCorrectionWords.All(), &p.FewClusters)
 	d.decodeReport(m.get("report"), &p.Report)
-	d.decodeInference(m.get("inference"), &p.Inference, p.Dir)
+	terms := slices.Clone(p.Terms)
+	for _, o := range p.Outcomes {
+		terms = append(terms, o.Terms...)
+	}
+	d.decodeInference(m.get("inference"), &p.Inference, p.Dir, terms)
 	if v := m.get("dictionary"); v != nil {
 		p.Dictionary = d.decodeDictionary(v)
 	}
