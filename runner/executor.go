@@ -10,8 +10,12 @@ import (
 // elsewhere: the data file (by content hash), how to read it, the model and
 // the fit options.
 type Job struct {
-	Outcome     string       `json:"outcome"` // for messages
-	Index       int          `json:"index"`   // position in the outcome's list of fits
+	Outcome string `json:"outcome"` // for messages
+	// Analysis is the sensitivity analysis whose fit this is ("" for the
+	// primary analysis), for messages (Label); not in the job's JSON, so
+	// that it is no part of the batch's identity (the queue's RunID).
+	Analysis    string       `json:"-"`
+	Index       int          `json:"index"` // position in the outcome's list of fits
 	ID          string       `json:"id"`
 	Spec        Spec         `json:"spec"`
 	DataFile    string       `json:"data_file"` // name of the data file, for messages
@@ -22,6 +26,20 @@ type Job struct {
 	// file's rows, or imputed set 1 of imputed data).
 	Design     *design.Frozen `json:"design,omitempty"`
 	FitOptions fit.Options    `json:"fit_options"`
+}
+
+// Label names the job's outcome in messages and log lines, with its
+// sensitivity analysis (AnalysisOutcome).
+func (j Job) Label() string { return AnalysisOutcome(j.Analysis, j.Outcome) }
+
+// AnalysisOutcome names an outcome of a run in progress and log lines:
+// the outcome, or under a sensitivity analysis "sensitivity analysis
+// NAME: OUTCOME".
+func AnalysisOutcome(analysis, outcome string) string {
+	if analysis == "" {
+		return outcome
+	}
+	return "sensitivity analysis " + analysis + ": " + outcome
 }
 
 // Executor fits jobs somewhere (for example on remote workers) and returns

@@ -59,7 +59,7 @@ func fitGrids(parts []gridPart, opt Options) error {
 		remote = remote && p.target.remote != nil
 	}
 	if remote {
-		return remoteJobs(opt.Executor, parts, opt.Progress)
+		return remoteJobs(opt.Executor, parts, opt.Progress, opt.Analysis)
 	}
 	for _, p := range parts {
 		localJobs(p.entries, p.target, opt)
@@ -148,7 +148,9 @@ func localJobs(entries []*FitEntry, t gridTarget, opt Options) {
 // remoteJobs dispatches the fits to the executor as jobs, one batch, and
 // stores the results in their entries; progress hears of each finished
 // fit when the executor says (a WatchedExecutor), under the outcome's name.
-func remoteJobs(ex Executor, parts []gridPart, progress Progress) error {
+// The jobs carry the name of the sensitivity analysis they are of
+// (analysis, "" for the primary analysis).
+func remoteJobs(ex Executor, parts []gridPart, progress Progress, analysis string) error {
 	var jobs []Job
 	type slot struct {
 		e      *FitEntry
@@ -165,7 +167,7 @@ func remoteJobs(ex Executor, parts []gridPart, progress Progress) error {
 			if rd.set != "" {
 				id += " (" + rd.set + ")"
 			}
-			jobs = append(jobs, Job{Outcome: rd.outcome, Index: i, ID: id, Spec: e.Spec, DataFile: rd.dataFile,
+			jobs = append(jobs, Job{Outcome: rd.outcome, Analysis: analysis, Index: i, ID: id, Spec: e.Spec, DataFile: rd.dataFile,
 				DataHash: rd.dataHash, DataOptions: rd.dataOptions, Design: rd.design, FitOptions: p.target.fit})
 			slots = append(slots, slot{e, p.target.settle})
 		}

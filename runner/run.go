@@ -27,6 +27,9 @@ type Options struct {
 	// NoSensitivity leaves out the plan's sensitivity analyses (a power
 	// study reads only the primary analysis of each replicate).
 	NoSensitivity bool
+	// Analysis is the name of the sensitivity analysis this run is (""
+	// for the primary analysis): its jobs carry it (Job.Analysis).
+	Analysis string
 }
 
 // Progress hears of the fits of a run as they finish.

@@ -33,7 +33,7 @@ func runSensitivity(p *plan.Plan, opt Options) []*SensitivityResult {
 	var out []*SensitivityResult
 	for _, s := range p.Sensitivity {
 		sopt := opt
-		sopt.NoTermTests, sopt.NoSensitivity = true, true
+		sopt.NoTermTests, sopt.NoSensitivity, sopt.Analysis = true, true, s.Name
 		if opt.Progress != nil {
 			sopt.Progress = namedProgress{opt.Progress, s.Name}
 		}
@@ -80,7 +80,7 @@ type namedProgress struct {
 }
 
 func (n namedProgress) Fitted(outcome, id string, done, total int) {
-	n.Progress.Fitted("sensitivity analysis "+n.name+": "+outcome, id, done, total)
+	n.Progress.Fitted(AnalysisOutcome(n.name, outcome), id, done, total)
 }
 
 // Outcome gives the analysis's result for an outcome column, or nil.

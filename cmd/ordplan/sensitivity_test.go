@@ -279,6 +279,14 @@ func TestSensitivityThroughQueue(t *testing.T) {
 	local, remote, r := runHereAndQueued(t, plan, 2)
 	t.Logf("through the queue:\n%s", r[1])
 	sameOutputs(t, local, remote)
+	// The coordinator's lines of each batch name the analysis it is of.
+	for _, want := range []string{"queue: y: run ", "queue: y: all 8 fits collected in ",
+		"queue: sensitivity analysis without_s3: y: run ", "queue: sensitivity analysis without_s3: y: all 8 fits collected in ",
+		"queue: sensitivity analysis imputed: y: run ", "queue: sensitivity analysis imputed: y: all 24 fits collected in "} {
+		if strings.Count("\n"+r[1], "\n"+want) != 1 {
+			t.Errorf("the log has not one line beginning %q", want)
+		}
+	}
 }
 
 // An analysis that changes only the errors (clusters and covariance) on

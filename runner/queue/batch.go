@@ -230,10 +230,14 @@ func (b *batch) take(e jetstream.KeyValueEntry, republish bool) (bool, error) {
 	return false, nil
 }
 
-// label names a task in messages: its fit, or its part's file and hash.
+// label names a task in messages: its fit (with its sensitivity analysis),
+// or its part's file and hash.
 func (t *Task) label() string {
-	if t.Part != nil && t.Part.Name != "" {
+	switch {
+	case t.Part != nil && t.Part.Name != "":
 		return fmt.Sprintf("part %s (sha256 %.12s)", t.Part.Name, t.ID)
+	case t.Fit != nil && t.Fit.Analysis != "":
+		return t.ID + " of sensitivity analysis " + t.Fit.Analysis
 	}
 	return t.ID
 }

@@ -207,7 +207,7 @@ func (co *Coordinator) execute(jobs []runner.Job, finished func(k int)) ([]*Repl
 		tasks[i] = &Task{Batch: id, Index: i, ID: j.ID, Kind: KindFit, Fit: &j}
 	}
 	start := time.Now()
-	outcome := jobs[0].Outcome
+	outcome := jobs[0].Label()
 	started := func(st BatchStats) {
 		if co.log != nil {
 			fmt.Fprintf(co.log, "queue: %s: run %s: %d fits: %d results present, %d jobs still queued, %d published\n",

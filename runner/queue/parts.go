@@ -55,7 +55,7 @@ func (co *Coordinator) executeParts(jobs []runner.Job, paths []string, finished 
 		return nil, nil
 	}
 	start := time.Now()
-	outcome := jobs[0].Outcome
+	outcome := jobs[0].Label()
 	type described struct {
 		whole fit.Whole
 		refs  []PartitionRef
