@@ -995,17 +995,17 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("run: exit %d\n%s\n%s", code, stdout, stderr)
 				}
 			}},
-		{id: "P75", name: "a sensitivity analysis declaring a categorical level no row used has", args: []string{"check"}, code: 1, setup: writeTermsData,
+		{id: "P76", name: "a sensitivity analysis declaring a categorical level no row used has", args: []string{"check"}, code: 1, setup: writeTermsData,
 			plan: termsPlan + "sensitivity:\n  - name: with_west\n    why: w\n    change:\n      categorical:\n        site: {levels: [north, east, south, west]}\n",
-			want: []string{`P75.yaml:16:24: sensitivity[0].change.categorical.site.levels: in sensitivity analysis "with_west": column "site": level "west" is declared but occurs in no row used; remove it from the levels, or have its column dropped (in a plan unobserved: drop, in ordplan fit |drop) (data cat.csv, outcome "y")` + "\n"},
+			want: []string{`P76.yaml:16:24: sensitivity[0].change.categorical.site.levels: in sensitivity analysis "with_west": column "site": level "west" is declared but occurs in no row used; remove it from the levels, or have its column dropped (in a plan unobserved: drop, in ordplan fit |drop) (data cat.csv, outcome "y")` + "\n"},
 			check: func(t *testing.T, dir, out, errs string) {
 				// run names it at the change too, in its warning, the
 				// report and decisions.json, and exits 3.
-				o := filepath.Join(dir, "P75-out")
-				stdout, stderr, code := runCLI("run", filepath.Join(dir, "P75.yaml"), "--out", o, "--quiet")
+				o := filepath.Join(dir, "P76-out")
+				stdout, stderr, code := runCLI("run", filepath.Join(dir, "P76.yaml"), "--out", o, "--quiet")
 				rep, _ := os.ReadFile(filepath.Join(o, "report.md"))
 				dec, _ := os.ReadFile(filepath.Join(o, "decisions.json"))
-				at := `P75.yaml:16:24: sensitivity[0].change.categorical.site.levels: column "site": level "west" is declared but occurs in no row used`
+				at := `P76.yaml:16:24: sensitivity[0].change.categorical.site.levels: column "site": level "west" is declared but occurs in no row used`
 				if code != 3 || !strings.Contains(stdout, "sensitivity analysis with_west: could not be run") ||
 					!strings.Contains(stderr, `sensitivity analysis "with_west" (sensitivity[0], line 12) could not be run: `+at) ||
 					!strings.Contains(string(rep), "**The sensitivity analysis with_west could not be run:** "+at) || !strings.Contains(string(dec), `"error": "`+strings.ReplaceAll(at, `"`, `\"`)) {
