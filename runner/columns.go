@@ -4,6 +4,7 @@ import (
 	"crypto/sha256"
 	"encoding/binary"
 	"encoding/hex"
+	"encoding/json"
 	"fmt"
 	"hash"
 	"math"
@@ -339,23 +340,27 @@ func sameRows(was, now OutcomeColumns) bool {
 // same.
 const noColumnChanged = "no column this outcome uses changed in the rows it uses"
 
-func outcomeColumnChanges(was, now OutcomeColumns) []string {
-	type pair struct{ was, now ColumnPrint }
-	var pairs []pair
-	var unpaired []string // columns the earlier record does not hold in their role
+// columnPair is one column in both records of an outcome, in its role.
+type columnPair struct{ was, now ColumnPrint }
+
+// compareColumns pairs the columns of two records of an outcome (in the
+// later record's order) and says of each pair whether it is the same (0),
+// its values moved between rows (1) or changed (2), with the counts of
+// moved and changed columns; unpaired are the later record's columns the
+// earlier does not hold in their role, "COLUMN (ROLE)".
+func compareColumns(was, now OutcomeColumns) (pairs []columnPair, kind []int, moved, changed int, unpaired []string) {
 	for _, c := range now.Columns {
 		n := len(pairs)
 		for _, w := range was.Columns {
 			if w.Column == c.Column && w.Role == c.Role {
-				pairs = append(pairs, pair{w, c})
+				pairs = append(pairs, columnPair{w, c})
 			}
 		}
 		if len(pairs) == n {
 			unpaired = append(unpaired, fmt.Sprintf("%s (%s)", c.Column, c.Role))
 		}
 	}
-	var moved, changed int
-	kind := make([]int, len(pairs)) // 0 the same, 1 moved, 2 changed
+	kind = make([]int, len(pairs))
 	for i, p := range pairs {
 		switch {
 		case p.was.ValuesSHA256 == p.now.ValuesSHA256 && len(summaryChanges(p.was, p.now)) == 0:
@@ -371,6 +376,11 @@ func outcomeColumnChanges(was, now OutcomeColumns) []string {
 			changed++
 		}
 	}
+	return pairs, kind, moved, changed, unpaired
+}
+
+func outcomeColumnChanges(was, now OutcomeColumns) []string {
+	pairs, kind, moved, changed, unpaired := compareColumns(was, now)
 	who := now.Outcome + ": "
 	// Rows that differ where no column compared differs differ in a
 	// column the earlier record does not hold (not read then, or not in
@@ -515,9 +525,14 @@ func sensitivityColumnChanges(prevRec *RunRecord, res *Result, dataChanged bool)
 			continue
 		}
 		was := prevRec.Sensitivity[i].DataColumns
+		subset := sensitivitySubsetChange(prevRec.Plan.Canonical, res.Plan.Canonical(), sr.Sensitivity.Name)
 		for _, n := range sr.Result.DataColumns() {
 			w := slices.IndexFunc(was, func(o OutcomeColumns) bool { return o.Outcome == n.Outcome })
 			if w < 0 {
+				continue
+			}
+			if subset != "" {
+				out = append(out, fmt.Sprintf("Sensitivity analysis %s: %s.", sr.Sensitivity.Name, subsetLine(subset, was[w], n, dataChanged)))
 				continue
 			}
 			var primary []string
@@ -538,6 +553,74 @@ func sensitivityColumnChanges(prevRec *RunRecord, res *Result, dataChanged bool)
 		}
 	}
 	return out
+}
+
+// sensitivitySubsetChange is how the subset a sensitivity analysis
+// changes (its change's subset key) differs between two canonical forms
+// of the plan, the keys with both values (subset[0].at_most 70 -> 60), as
+// the plan's changes are named (planKeys); "" when the analysis changes no
+// subset in either, has the same one, or either form is missing (an older
+// record). An analysis found in one form only is not compared.
+func sensitivitySubsetChange(was, now json.RawMessage, name string) string {
+	a, aok := changedSubset(was, name)
+	b, bok := changedSubset(now, name)
+	if !aok || !bok || a == nil && b == nil {
+		return ""
+	}
+	wrap := func(v json.RawMessage) json.RawMessage {
+		if v == nil {
+			return json.RawMessage(`{}`)
+		}
+		return append(append(json.RawMessage(`{"subset":`), v...), '}')
+	}
+	keys, known := planKeys(wrap(a), wrap(b))
+	if !known {
+		return ""
+	}
+	return strings.Join(keys, "; ")
+}
+
+// changedSubset is the subset that the sensitivity analysis named name
+// gives in its change in the canonical form canon (nil: it changes none);
+// not ok when the form or the analysis is missing.
+func changedSubset(canon json.RawMessage, name string) (json.RawMessage, bool) {
+	var p struct {
+		Sensitivity []struct {
+			Name   string                     `json:"name"`
+			Change map[string]json.RawMessage `json:"change"`
+		} `json:"sensitivity"`
+	}
+	if len(canon) == 0 || json.Unmarshal(canon, &p) != nil {
+		return nil, false
+	}
+	for _, s := range p.Sensitivity {
+		if s.Name == name {
+			return s.Change["subset"], true
+		}
+	}
+	return nil, false
+}
+
+// subsetLine says in one line how an outcome's data under a sensitivity
+// analysis whose subset changed (keys: how) changed: the rows used before
+// and now, and how many of the columns it reads changed with them (one
+// line for what the columns' own lines would say of every column); with
+// the data changed too, that the two are not told apart.
+func subsetLine(keys string, was, now OutcomeColumns, dataChanged bool) string {
+	_, _, moved, changed, _ := compareColumns(was, now)
+	s := fmt.Sprintf("%s: its subset changed (%s): ", now.Outcome, keys)
+	switch {
+	case sameRows(was, now):
+		s += fmt.Sprintf("it uses the same %d rows", now.Rows)
+	case moved+changed == len(now.Columns):
+		s += fmt.Sprintf("rows used %d -> %d, and all %d columns it reads changed with them", was.Rows, now.Rows, len(now.Columns))
+	default:
+		s += fmt.Sprintf("rows used %d -> %d, and %d of the %d columns it reads changed with them", was.Rows, now.Rows, moved+changed, len(now.Columns))
+	}
+	if dataChanged {
+		s += " (the data changed too: the columns' changes are not only the subset's)"
+	}
+	return s
 }
 
 // saidAlready reports whether a line of one outcome's column changes

@@ -279,6 +279,60 @@ func TestRerunNamesSensitivityColumns(t *testing.T) {
 	}
 }
 
+// A sensitivity analysis whose subset changed between two runs reads
+// other rows, so every column it reads changes: --previous says so in one
+// line, naming the analysis, the subset's change with both values and
+// the rows used before and now (counted here from the rows written), not
+// one line per column; a subset that keeps the same rows says that; with
+// the data changed too, that the two are not told apart.
+func TestRerunSummarisesSensitivitySubset(t *testing.T) {
+	dir := t.TempDir()
+	data := filepath.Join(dir, "d.csv")
+	p := filepath.Join(dir, "plan.yaml")
+	writeRows(t, data, rerunRows(nil))
+	section := "sensitivity:\n  - name: younger\n    why: Older respondents may answer otherwise.\n    change:\n      subset: [{column: age, at_most: %s}]\n"
+	upTo := func(age int) int {
+		n := 0
+		for i := range 240 {
+			if 20+(i*13)%50 <= age {
+				n++
+			}
+		}
+		return n
+	}
+	run := func(at, out, previous string) string {
+		t.Helper()
+		os.WriteFile(p, []byte(fmt.Sprintf(rerunPlan, "file: d.csv")+fmt.Sprintf(section, at)), 0o644)
+		args := []string{"run", p, "--out", filepath.Join(dir, out), "--quiet"}
+		if previous != "" {
+			args = append(args, "--previous", filepath.Join(dir, previous))
+		}
+		stdout, e, code := runCLI(args...)
+		if code != 0 {
+			t.Fatalf("exit %d: %s", code, e)
+		}
+		return stdout
+	}
+	run("49", "a", "")
+	for _, c := range []struct{ at, out, previous, want string }{
+		{"39", "b", "a", fmt.Sprintf("since the previous run: Sensitivity analysis younger: y: its subset changed (subset[0].at_most 49 -> 39): rows used %d -> %d, and all 3 columns it reads changed with them.\n", upTo(49), upTo(39))},
+		{"39.5", "c", "b", fmt.Sprintf("since the previous run: Sensitivity analysis younger: y: its subset changed (subset[0].at_most 39 -> 39.5): it uses the same %d rows.\n", upTo(39))},
+		{"45", "d", "c", fmt.Sprintf("rows used %d -> %d, and all 3 columns it reads changed with them (the data changed too: the columns' changes are not only the subset's).\n", upTo(39), upTo(45))},
+	} {
+		if c.out == "d" {
+			writeRows(t, data, rerunRows(func(i int, f []string) {
+				if i == 2 {
+					f[0] = "3"
+				}
+			}))
+		}
+		stdout := run(c.at, c.out, c.previous)
+		if !strings.Contains(stdout, c.want) || strings.Contains(stdout, "Sensitivity analysis younger: y: column ") {
+			t.Errorf("subset at_most %s: want %q, and no line per column, in:\n%s", c.at, c.want, stdout)
+		}
+	}
+}
+
 // The plan changed between two runs: --previous names the key and both
 // values (from run.json's plan.canonical); a comment alone changes the
 // plan's hash but not its canonical form, which is said.
