@@ -171,7 +171,7 @@ func NotCheckedWithoutData(p *plan.Plan) []string {
 		"predictors: constant or collinear design columns (the rank of each outcome's design on the rows used)",
 	}
 	if p.Data.Weights != "" {
-		out = append(out, "data.weights: every weight is a number of zero or more")
+		out = append(out, "data.weights: every weight is a number of zero or more, at most 1e15, and none dwarfs the others together (they weigh at least 1.5e-8 of the total)")
 	}
 	if p.Data.Cluster != "" {
 		out = append(out, fmt.Sprintf("data.cluster: the number of clusters in the rows used (fewer than %d gives a warning: cluster-robust errors too small, joint Wald tests of more than G-1 restrictions not computed; a model of more than G-1 parameters gives another: its cluster-robust covariance is singular)", fit.FewClusters))

@@ -52,7 +52,7 @@ func TestCheckNoDataSaysWhatItLeftOut(t *testing.T) {
 		"categorical: values that are not declared levels, and declared levels no row used has (unobserved: refuse stops, drop removes the level's column)",
 		"data.cluster: the number of clusters in the rows used (fewer than 40 gives a warning: cluster-robust errors too small, joint Wald tests of more than G-1 restrictions not computed; a model of more than G-1 parameters gives another: its cluster-robust covariance is singular)",
 		"data.file: the data file opens and holds every column the plan names (its delimiter and decimal mark checked)",
-		"data.weights: every weight is a number of zero or more",
+		"data.weights: every weight is a number of zero or more, at most 1e15, and none dwarfs the others together (they weigh at least 1.5e-8 of the total)",
 		"data: every used cell reads as its column's kind (numbers, declared levels, outcome categories), and missing values are as data.missing says",
 		"dictionary: the data's values against the declared ranges, values and missing-value codes",
 		"inference.hypotheses: the boundaries and level columns that the data's categories and levels give the models",
