@@ -141,8 +141,10 @@ func FewClustersWarnings(res *Result) []string {
 }
 
 // pointWarnings are the notes of the data read for outcome on columns
-// whose points may separate thousands (data.Dataset.PointNotes), which
-// check and run print on the terminal as warnings (the report has them).
+// whose points may separate thousands (data.Dataset.PointNotes), and on
+// an outcome code that looks like a code for a missing answer
+// (data.Dataset.StrayCode), which check and run print on the terminal as
+// warnings (the report has them).
 func pointWarnings(outcome string, ds *data.Dataset) []string {
 	if ds == nil {
 		return nil
@@ -150,6 +152,9 @@ func pointWarnings(outcome string, ds *data.Dataset) []string {
 	out := make([]string, len(ds.PointNotes))
 	for i, n := range ds.PointNotes {
 		out[i] = fmt.Sprintf("outcome %s: %s", outcome, n)
+	}
+	if ds.StrayCode != "" {
+		out = append(out, fmt.Sprintf("outcome %s: %s", outcome, ds.StrayCode))
 	}
 	return out
 }

@@ -341,6 +341,32 @@ func mistakeItems(dir string) []badInput {
 					t.Errorf("report.md lacks %q (%v)", want, err)
 				}
 			}},
+		{id: "W31", name: "an outcome code that looks like one for a missing answer, categories left to the data", args: []string{"check"}, code: 0,
+			plan: edit("  file: d.csv\n", "  file: W31.csv\n"),
+			setup: func(t *testing.T, dir, id string) {
+				var b strings.Builder
+				b.WriteString("y,a,b\n")
+				for i := range 60 {
+					y := 1 + i%4
+					if i%15 == 7 {
+						y = 9
+					}
+					fmt.Fprintf(&b, "%d,%d,%d\n", y, (i*7)%11, i%2)
+				}
+				if err := os.WriteFile(filepath.Join(dir, id+".csv"), []byte(b.String()), 0o644); err != nil {
+					t.Fatal(err)
+				}
+			},
+			check: func(t *testing.T, dir, out, errs string) {
+				want := `outcome y: Code 9 lies apart from the others (1 to 4), as codes for "don't know" or a missing answer often do: it was analysed as the highest category; if it is not a point of the scale, list it as missing (dictionary.y.missing: ["9"]; ordplan fit: --missing-codes y=9), or declare the categories (outcomes[].categories: [1, 2, 3, 4])` + "\n"
+				if !strings.Contains(errs, "warning: "+filepath.Join(dir, "W31.yaml")+": "+want) {
+					t.Errorf("check: want %q in\n%s", want, errs)
+				}
+				_, e, code := runCLI("run", filepath.Join(dir, "W31.yaml"), "--out", filepath.Join(dir, "W31-out"), "--quiet")
+				if code != 0 || !strings.Contains(e, want) {
+					t.Errorf("run: exit %d, want %q in\n%s", code, want, e)
+				}
+			}},
 		{id: "P66", name: "ordplan init into a folder that does not exist", args: []string{"init", filepath.Join(dir, "P66-nodir", "x.yaml"), "--data", filepath.Join(dir, "d.csv")}, code: 1,
 			want:  []string{"ordplan: init: cannot write P66-nodir/x.yaml: the folder P66-nodir does not exist: make it first, or give another path"},
 			check: noFolder("P66-nodir")},

@@ -132,6 +132,8 @@ func TestReadErrors(t *testing.T) {
 }
 
 func TestRead(t *testing.T) {
+	// The code 10 lies apart from -1 and 2: a warning (strayCode).
+	const stray10 = `Code 10 lies apart from the others (-1 to 2), as codes for "don't know" or a missing answer often do: it was analysed as the highest category; if it is not a point of the scale, list it as missing (dictionary.y.missing: ["10"]; ordplan fit: --missing-codes y=10), or declare the categories (outcomes[].categories: [-1, 2])`
 	tests := []struct {
 		name string
 		in   string
@@ -149,7 +151,8 @@ func TestRead(t *testing.T) {
 				RowsRead: 7, RowsDropped: 3,
 				Dropped: []DropCount{{Column: "y", Rows: 1}, {Column: "a", Rows: 1}, {Column: "b", Rows: 1}},
 				Counts:  []float64{1, 2, 1}, Lines: []int{2, 3, 4, 8},
-				Notes: []string{"The outcome y holds the integer codes -1, 2 and 10, taken as ordered categories, lowest first; 9 integers between them do not occur (0, 1, 3, 4, 5, 6, ...), so no category stands for them, and the distance between two codes plays no part"},
+				Notes:     []string{"The outcome y holds the integer codes -1, 2 and 10, taken as ordered categories, lowest first; 9 integers between them do not occur (0, 1, 3, 4, 5, 6, ...), so no category stands for them, and the distance between two codes plays no part. " + stray10},
+				StrayCode: stray10,
 			},
 		},
 		{
@@ -453,5 +456,34 @@ func TestDropSummarySaysFirstColumnCounts(t *testing.T) {
 	want := "2 of 5 rows dropped for missing values (a: 1, b: 1; a row with several of these is counted once, under the first)"
 	if got := d.DropSummary(); got != want {
 		t.Errorf("DropSummary = %q, want %q", got, want)
+	}
+}
+
+// TestStrayCode: an outcome's highest integer code of 8 or more lying
+// further from the next than the other codes span, or a negative lowest
+// code as far apart, is said to look like a code for a missing answer;
+// codes of a scale with a gap (1, 2, 5; 1 to 7 and 9; -1, 0, 1) are not.
+func TestStrayCode(t *testing.T) {
+	for _, c := range []struct {
+		labels []string
+		code   string // "" when none
+	}{
+		{[]string{"1", "2", "3", "4", "9"}, "Code 9 lies apart from the others (1 to 4)"},
+		{[]string{"1", "2", "3", "4", "5", "99"}, "Code 99 lies apart from the others (1 to 5)"},
+		{[]string{"0", "1", "9"}, "Code 9 lies apart from the others (0 to 1)"},
+		{[]string{"-9", "1", "2", "3"}, "Code -9 lies apart from the others (1 to 3), as codes for \"don't know\" or a missing answer often do: it was analysed as the lowest category"},
+		{[]string{"-1", "1", "2"}, "Code -1 lies apart from the others (1 to 2)"},
+		{[]string{"-1", "0", "1"}, ""},
+		{[]string{"-1", "0", "1", "2"}, ""},
+		{[]string{"1", "2", "5"}, ""},
+		{[]string{"1", "2", "3", "4", "5", "6", "7", "9"}, ""},
+		{[]string{"-2", "-1", "0", "1", "2"}, ""},
+		{[]string{"1", "2", "10", "11"}, ""},
+		{[]string{"1", "9"}, ""},
+	} {
+		got := strayCode("y", c.labels)
+		if c.code == "" && got != "" || c.code != "" && !strings.HasPrefix(got, c.code) {
+			t.Errorf("%v: %q, want %q", c.labels, got, c.code)
+		}
 	}
 }

@@ -83,6 +83,11 @@ type Dataset struct {
 	// has a point and three digits after it, which may separate thousands
 	// (thousandsPoints): check and run print them on the terminal too.
 	PointNotes []string
+	// StrayCode, when the outcome's categories are its integer codes as
+	// found, says that its highest or lowest code lies apart from the
+	// others as a code for a missing answer does (strayCode; in Notes
+	// too, through CodeGapNote): check and run warn of it.
+	StrayCode string
 	// Sheet names the worksheet of a workbook the rows come from, and
 	// what of it is hidden; nil for other files and for parts (each
 	// workbook part's is in Parts).

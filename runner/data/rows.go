@@ -147,6 +147,7 @@ func (r *reader) finish(t *rowTally, d *Dataset) (*Dataset, error) {
 		d.Categories = codeCategories(t.codes, d.Y)
 		if n := CodeGapNote(opt.Outcome, d.Categories); n != "" && !opt.Part {
 			d.Notes = append(d.Notes, n)
+			d.StrayCode = strayCode(opt.Outcome, d.Categories)
 		}
 	}
 	if err := r.tally(d); err != nil {
@@ -1039,7 +1040,50 @@ func CodeGapNote(outcome string, labels []string) string {
 	case count > 6:
 		none = fmt.Sprintf("%d integers between them do not occur (%s, ...)", count, strings.Join(absent, ", "))
 	}
-	return fmt.Sprintf("The outcome %s holds the integer codes %s, taken as ordered categories, lowest first; %s, so no category stands for them, and the distance between two codes plays no part", outcome, words.AndList(labels), none)
+	note := fmt.Sprintf("The outcome %s holds the integer codes %s, taken as ordered categories, lowest first; %s, so no category stands for them, and the distance between two codes plays no part", outcome, words.AndList(labels), none)
+	if s := strayCode(outcome, labels); s != "" {
+		note += ". " + s
+	}
+	return note
+}
+
+// strayCode says, of an outcome whose categories are its integer codes as
+// found (labels, ascending), that its highest code, 8 or more, lies
+// further from the next than the other codes span (9 beside 1 to 4, 99
+// beside 1 to 5; not 5 beside 1 and 2, a scale whose middle no row has), or
+// that its lowest is negative and lies so from the next (-9 beside 1 to 3;
+// not -1 beside 0 and 1, a scale of its own), as codes for "don't know" or
+// a missing answer do; "" when neither. Such a code was analysed as a
+// category at the end of the scale.
+func strayCode(outcome string, labels []string) string {
+	k := len(labels)
+	if k < 3 {
+		return ""
+	}
+	codes := make([]int64, k)
+	for i, l := range labels {
+		c, err := strconv.ParseInt(l, 10, 64)
+		if err != nil {
+			return ""
+		}
+		codes[i] = c
+	}
+	var code, end string
+	var rest []int64
+	switch {
+	case codes[k-1] >= 8 && codes[k-1]-codes[k-2] >= 2 && codes[k-1]-codes[k-2] > codes[k-2]-codes[0]:
+		code, end, rest = labels[k-1], "highest", codes[:k-1]
+	case codes[0] < 0 && codes[1]-codes[0] >= 2 && codes[1]-codes[0] > codes[k-1]-codes[1]:
+		code, end, rest = labels[0], "lowest", codes[1:]
+	default:
+		return ""
+	}
+	keep := make([]string, len(rest))
+	for i, c := range rest {
+		keep[i] = strconv.FormatInt(c, 10)
+	}
+	return fmt.Sprintf("Code %s lies apart from the others (%s to %s), as codes for \"don't know\" or a missing answer often do: it was analysed as the %s category; if it is not a point of the scale, list it as missing (dictionary.%s.missing: [\"%s\"]; ordplan fit: --missing-codes %s=%s), or declare the categories (outcomes[].categories: [%s])",
+		code, keep[0], keep[len(keep)-1], end, outcome, code, outcome, code, strings.Join(keep, ", "))
 }
 
 // listedCodes sets y to the index of each code among Options.Codes and
