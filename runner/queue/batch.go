@@ -230,13 +230,20 @@ func (b *batch) take(e jetstream.KeyValueEntry, republish bool) (bool, error) {
 	return false, nil
 }
 
-// label names a task in messages: its fit (with its sensitivity analysis),
-// or its part's file and hash.
+// label names a task in messages: its fit (jobName), or its part's file
+// and hash.
 func (t *Task) label() string {
-	switch {
-	case t.Part != nil && t.Part.Name != "":
+	if t.Part != nil && t.Part.Name != "" {
 		return fmt.Sprintf("part %s (sha256 %.12s)", t.Part.Name, t.ID)
-	case t.Fit != nil && t.Fit.Analysis != "":
+	}
+	return t.jobName()
+}
+
+// jobName is the task's id in log lines, with the sensitivity analysis
+// whose fit it is (cumulative/parallel/logit of sensitivity analysis
+// imputed).
+func (t *Task) jobName() string {
+	if t.Fit != nil && t.Fit.Analysis != "" {
 		return t.ID + " of sensitivity analysis " + t.Fit.Analysis
 	}
 	return t.ID

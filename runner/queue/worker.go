@@ -118,7 +118,7 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 		msg.TermWithReason("job refused: " + err.Error())
 		return
 	}
-	w.logf("worker %s: started %s %s (delivery %d)", w.Name, msg.Subject(), t.ID, delivered)
+	w.logf("worker %s: started %s %s (delivery %d)", w.Name, msg.Subject(), t.jobName(), delivered)
 	start := time.Now()
 	stop := w.keepAlive(msg)
 	if w.Delay > 0 && (w.DelayKind == "" || w.DelayKind == t.Kind) && !w.hold(ctx, t) {
@@ -141,7 +141,7 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 		// stored as the reply only at the last delivery before the
 		// poison rule.
 		stop()
-		w.logf("worker %s: %s: %s (delivery %d; left for another try)", w.Name, t.ID, r.Err, delivered)
+		w.logf("worker %s: %s: %s (delivery %d; left for another try)", w.Name, t.jobName(), r.Err, delivered)
 		msg.NakWithDelay(faultRetryDelay)
 		return
 	}
@@ -160,9 +160,9 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 	stop()
 	switch {
 	case errors.Is(err, jetstream.ErrKeyExists):
-		w.logf("worker %s: %s: a reply was already stored; this duplicate is dropped", w.Name, t.ID)
+		w.logf("worker %s: %s: a reply was already stored; this duplicate is dropped", w.Name, t.jobName())
 	case err != nil:
-		w.logf("worker %s: %s: storing the reply: %v (job left for another try)", w.Name, t.ID, err)
+		w.logf("worker %s: %s: storing the reply: %v (job left for another try)", w.Name, t.jobName(), err)
 		msg.NakWithDelay(time.Second)
 		return
 	default:
@@ -170,10 +170,10 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 		if r.Err != "" {
 			status = "error: " + r.Err
 		}
-		w.logf("worker %s: done %s %s in %s: %s", w.Name, msg.Subject(), t.ID, time.Since(start).Round(time.Millisecond), status)
+		w.logf("worker %s: done %s %s in %s: %s", w.Name, msg.Subject(), t.jobName(), time.Since(start).Round(time.Millisecond), status)
 	}
 	if err := msg.DoubleAck(sctx); err != nil {
-		w.logf("worker %s: %s: acknowledging: %v", w.Name, t.ID, err)
+		w.logf("worker %s: %s: acknowledging: %v", w.Name, t.jobName(), err)
 	}
 }
 
@@ -233,7 +233,7 @@ func (w *Worker) keepAlive(msg jetstream.Msg) func() {
 // hold waits Delay before job t is computed, saying so; false when ctx
 // ended first.
 func (w *Worker) hold(ctx context.Context, t *Task) bool {
-	w.logf("worker %s: holding %s job %s for %s", w.Name, t.Kind, t.ID, w.Delay)
+	w.logf("worker %s: holding %s job %s for %s", w.Name, t.Kind, t.jobName(), w.Delay)
 	return sleep(ctx, w.Delay)
 }
 
