@@ -19,7 +19,8 @@ type Baseline struct {
 
 // Baseline converts an adjacent nonparallel logit fit to baseline-category
 // form against reference category ref (0-based), with delta-method (here
-// exact, the map being linear) standard errors.
+// exact, the map being linear) standard errors, NaN for those resting on
+// parameters NotEstimable marks (r.linearMap).
 func (r *Result) Baseline(ref int) (*Baseline, error) {
 	if r.Model.Comparison != Adjacent || r.Model.Link != Logit || r.Model.Structure() != NonparallelEffects {
 		return nil, fmt.Errorf("the baseline-category form exists for the adjacent nonparallel logit only, not %s", r.Name)
@@ -70,7 +71,7 @@ func (r *Result) Baseline(ref int) (*Baseline, error) {
 			row++
 		}
 	}
-	out.Estimates, out.Cov = linearMap(A, nOut, r.Estimates, r.Cov)
+	out.Estimates, out.Cov = r.linearMap(A, nOut)
 	out.StdErrors = make([]float64, nOut)
 	for i := range out.StdErrors {
 		out.StdErrors[i] = math.Sqrt(out.Cov[i*nOut+i])

@@ -174,7 +174,8 @@ func identifiedCovariance(ly *layout, pr *problem, st *newtonState, drop []bool,
 // PhiNormalized rescales the common factor of constraint group g (0-based,
 // in the order of Result.PhiGroups) so that phi of equation ref (1-based)
 // is 1, with gamma multiplied by the old phi_ref; standard errors by the
-// delta method from Cov.
+// delta method from Cov (r.linearMap: NaN for those resting on
+// parameters NotEstimable marks).
 func (r *Result) PhiNormalized(g, ref int) (*PhiNormalization, error) {
 	if g < 0 || g >= len(r.Phi) {
 		return nil, fmt.Errorf("%s has no constraint group %d", r.Name, g+1)
@@ -221,7 +222,7 @@ func (r *Result) PhiNormalized(g, ref int) (*PhiNormalization, error) {
 		}
 		out.Predictors = append(out.Predictors, r.Predictors[k])
 	}
-	_, cov := linearMap(A, n, r.Estimates, r.Cov)
+	_, cov := r.linearMap(A, n)
 	se := make([]float64, n)
 	for i := range se {
 		se[i] = math.Sqrt(math.Max(cov[i*n+i], 0))

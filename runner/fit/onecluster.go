@@ -119,6 +119,28 @@ func (r *Result) waldStat(R [][]float64) (float64, error) {
 	return r.waldStatDiff(R, rt)
 }
 
+// linearMap is A theta and the covariance A V A' of the n outputs of a
+// linear map (or a delta-method Jacobian) A, n x P, of r's parameters: under
+// NotEstimable from the covariance as computed, with the rows and columns
+// of the outputs whose row of A loads on a combination the cluster-robust
+// covariance cannot estimate NaN, so that one marked parameter takes out
+// only the outputs that depend on it.
+func (r *Result) linearMap(A []float64, n int) ([]float64, []float64) {
+	if r.bound == nil {
+		return linearMap(A, n, r.Estimates, r.Cov)
+	}
+	est, cov := linearMap(A, n, r.Estimates, r.bound.raw)
+	P := len(r.Estimates)
+	for i := 0; i < n; i++ {
+		if r.bound.loads(A[i*P : (i+1)*P]) {
+			for j := 0; j < n; j++ {
+				cov[i*n+j], cov[j*n+i] = math.NaN(), math.NaN()
+			}
+		}
+	}
+	return est, cov
+}
+
 // VarianceAvailable reports whether the delta-method variance of g'theta
 // can be read from r's covariance (see variance).
 func (r *Result) VarianceAvailable(g []float64) bool {
@@ -363,11 +385,22 @@ func notEstimableReason(ne *NotEstimable, name func(string) string) string {
 	if len(ids) > 1 {
 		clusters = "clusters " + list(ids, 3)
 	}
-	return fmt.Sprintf("the standard errors of %s are not estimable under clustered errors: they depend on combinations of the model's columns whose rows all lie in one cluster (%s), "+
+	return fmt.Sprintf("the standard errors of %s"+notEstimableMark+"they depend on combinations of the model's columns whose rows all lie in one cluster (%s), "+
 		"such as a cluster's own fixed effect or a level met in one cluster; such a combination's score sums to 0 within its cluster at the maximum, so the cluster-robust covariance has no information on it. "+
 		"These standard errors, and every test, interval, odds-ratio interval, marginal effect or prediction interval that depends on them, are not available (n/a); "+
 		"read those estimates only, or use errors that do not cluster by this column",
 		list(params, 8), clusters)
+}
+
+// notEstimableMark is the words that mark a reason of notEstimableReason
+// (IsNotEstimableReason).
+const notEstimableMark = " are not estimable under clustered errors: "
+
+// IsNotEstimableReason reports whether s, the reason a quantity was not
+// computed, is NotEstimable's: a report states it once below a table
+// rather than in each cell.
+func IsNotEstimableReason(s string) bool {
+	return strings.HasPrefix(s, "the standard errors of ") && strings.Contains(s, notEstimableMark)
 }
 
 // NotEstimableNote is the reason of NotEstimable with the parameters
@@ -424,4 +457,61 @@ func (r *Result) PoolNotEstimable(sets []*Result) {
 			r.StdErrors[i] = math.NaN()
 		}
 	}
+}
+
+// screenTolerance: the clustered meat's smallest eigenvalue in the metric
+// of the information, over its largest (at least 1), at or below which
+// oneClusterCombinations looks for one-cluster combinations. Looser than
+// the test it screens for (a one-cluster combination's eigenvalue is
+// rounding, below 1e-12), so that the information standing in for the
+// rows' score cross-products cannot hide one.
+const screenTolerance = 1e-6
+
+// meatMaySingular reports whether the cluster-robust meat B (P x P, the
+// clusters' summed scores' outer products) may have a null direction, in
+// the metric of the information A (P x P, positive definite): only then can
+// some combination of the parameters lie in one cluster (its summed score
+// is 0 in every cluster), and oneClusterCombinations, which reads the rows
+// again, is needed. It is always so when the clusters are not more than the
+// parameters (B has rank at most G-1).
+func meatMaySingular(A, B []float64, P, G int) bool {
+	if G <= P {
+		return true
+	}
+	dsc := make([]float64, P)
+	for j := range dsc {
+		if v := A[j*P+j]; v > 0 {
+			dsc[j] = 1 / math.Sqrt(v)
+		}
+	}
+	S := mat.NewSymDense(P, nil)
+	for a := 0; a < P; a++ {
+		for b := a; b < P; b++ {
+			S.SetSym(a, b, A[a*P+b]*dsc[a]*dsc[b])
+		}
+	}
+	var es mat.EigenSym
+	if !es.Factorize(S, true) {
+		return true
+	}
+	vals := es.Values(nil)
+	if !(vals[0] > RankTolerance*vals[P-1]) {
+		return true
+	}
+	var U mat.Dense
+	es.VectorsTo(&U)
+	// W = Lambda^-1/2 U' D^-1/2, C = W B W'.
+	W := make([]float64, P*P)
+	for k := 0; k < P; k++ {
+		for j := 0; j < P; j++ {
+			W[k*P+j] = U.At(j, k) / math.Sqrt(vals[k]) * dsc[j]
+		}
+	}
+	C := aMAt(W, P, P, B)
+	Cs := mat.NewSymDense(P, C)
+	if !es.Factorize(Cs, false) {
+		return true
+	}
+	cv := es.Values(nil)
+	return cv[0] <= screenTolerance*math.Max(cv[P-1], 1)
 }

@@ -195,7 +195,7 @@ func sandwich(d *Data, r *Result, clusters []string, probability, factor bool) (
 	for i := range V {
 		V[i] *= info.Factor
 	}
-	if info.Type == Clustered {
+	if info.Type == Clustered && meatMaySingular(A, B, P, info.Clusters) {
 		dirs, ids, minv, err := oneClusterCombinations(pr, theta, clusters, w)
 		if err != nil {
 			return nil, info, err

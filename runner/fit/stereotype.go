@@ -42,7 +42,8 @@ const StereotypeNormalization = "ln[P(y=j)/P(y=1)] = alpha_j + score_j x'beta; t
 
 // StereotypeScores reports the category scores of a stereotype fit (adjacent
 // logit, every predictor constrained, one group), with delta-method
-// standard errors from r.Cov.
+// standard errors from r.Cov (r.linearMap: NaN for those resting on
+// parameters NotEstimable marks).
 func (r *Result) StereotypeScores() (*StereotypeScores, error) {
 	if r.Model.Comparison != Adjacent || r.Model.Link != Logit || r.Model.Structure() != StereotypeEffects {
 		return nil, fmt.Errorf("category scores exist for the stereotype model (adjacent logit, every predictor constrained in one group), not %s", r.Name)
@@ -106,7 +107,7 @@ func (r *Result) StereotypeScores() (*StereotypeScores, error) {
 		}
 		row++
 	}
-	_, cov := linearMap(A, n, th, r.Cov)
+	_, cov := r.linearMap(A, n)
 	out.Estimates, out.Cov = est, cov
 	out.StdErrors = make([]float64, n)
 	for i := range out.StdErrors {
