@@ -415,7 +415,7 @@ func writeImputation(d *doc, or *runner.OutcomeResult, sampling bool, cluster st
 		var rows [][]string
 		for j, n := range f.Result.ParamNames {
 			w, b, _ := runner.PooledVariances(pl, j)
-			rows = append(rows, []string{ParamLabel(f.Result, n), numfmt.Est(pl.Estimate[j]), numfmt.Est(math.Sqrt(w)), numfmt.Est(math.Sqrt(b)), numfmt.Est(pl.SE[j]), dfCell(pl.DF[j]), numfmt.Fixed(pl.RIV[j], 3), numfmt.Fixed(pl.Lambda[j], 3), numfmt.Fixed(pl.FMI[j], 3)})
+			rows = append(rows, []string{ParamLabel(f.Result, n), numfmt.Est(pl.Estimate[j]), numfmt.Est(math.Sqrt(w)), numfmt.Est(math.Sqrt(b)), numfmt.Est(pl.SE[j]), dfCell(runner.PooledDF(pl, j)), numfmt.Fixed(pl.RIV[j], 3), numfmt.Fixed(pl.Lambda[j], 3), numfmt.Fixed(pl.FMI[j], 3)})
 		}
 		d.p("The pooled estimates of %s with the within-set and between-set standard deviations, the total standard error, the degrees of freedom (df), the relative increase in variance due to missing values (RIV, (1 + 1/m) B/W, B the between-set and W the mean within-set variance), λ = (1 + 1/m) B/T, the share of the total variance T due to the missing values, and the fraction of missing information FMI = (RIV + 2/(df + 3))/(RIV + 1) = λ (df + 1)/(df + 3) + 2/(df + 3). FMI adds to λ a term for the finite degrees of freedom: where df are few (%s) it stays near 2/(df + 3) even for a parameter the sets agree on (B near 0), so it is not compared with the share of missing values. A λ well above the share of incomplete rows, or degrees of freedom below about 10, say that the number of imputed sets (%d) is too small for stable p-values.", f.ID, fewDFText(g), im.M)
 		d.captioned("Pooling of "+f.ID).table([]string{"Parameter", "Estimate", "Within SD", "Between SD", "SE", "df", "RIV", "λ", "FMI"}, rows)

@@ -4,9 +4,13 @@ import (
 	"bytes"
 	"fmt"
 	"regexp"
+	"slices"
 	"strings"
 	"unicode"
 	"unicode/utf8"
+
+	"ordplan/internal/words"
+	"ordplan/runner/fit"
 )
 
 // doc is a report being written: Markdown text with chart groups between
@@ -143,6 +147,7 @@ func (d *doc) table(head []string, rows [][]string) {
 		}
 	}
 	fmt.Fprintf(&d.b, "| %s |\n|%s\n", strings.Join(cells, " | "), align.String())
+	rows, notes := clusteredNotComputed(head, rows)
 	for _, r := range rows {
 		cells = cells[:0]
 		for _, c := range r {
@@ -151,6 +156,63 @@ func (d *doc) table(head []string, rows [][]string) {
 		fmt.Fprintf(&d.b, "| %s |\n", strings.Join(cells, " | "))
 	}
 	d.b.WriteString("\n")
+	for _, n := range notes {
+		d.p("%s", n)
+	}
+}
+
+// notComputedPrefix opens the cell of a test or quantity not computed,
+// before its reason.
+const notComputedPrefix = "not computed: "
+
+// clusteredCell stands in a table for the reason a test was not computed
+// when that reason is a fit's fit.NotEstimable (the same long sentence in
+// many cells): clusteredNotComputed states it once below the table.
+const clusteredCell = "not computed (clustered errors, see below)"
+
+// clusteredNotComputed returns rows with every cell "not computed: " +
+// a reason of fit.NotEstimable written clusteredCell, and the paragraphs
+// that state each such reason once below the table: with the models it
+// concerns when the table has a Model column and several reasons.
+func clusteredNotComputed(head []string, rows [][]string) ([][]string, []string) {
+	model := slices.Index(head, "Model")
+	var reasons []string
+	models := map[string][]string{}
+	var out [][]string
+	for i, r := range rows {
+		for j, c := range r {
+			why, ok := strings.CutPrefix(c, notComputedPrefix)
+			if !ok || !fit.IsNotEstimableReason(why) {
+				continue
+			}
+			if out == nil {
+				out = make([][]string, len(rows))
+				for k := range rows {
+					out[k] = slices.Clone(rows[k])
+				}
+			}
+			out[i][j] = clusteredCell
+			if _, seen := models[why]; !seen {
+				reasons = append(reasons, why)
+				models[why] = nil
+			}
+			if model >= 0 && model < len(r) && !slices.Contains(models[why], r[model]) {
+				models[why] = append(models[why], r[model])
+			}
+		}
+	}
+	if out == nil {
+		return rows, nil
+	}
+	var notes []string
+	for _, why := range reasons {
+		in := ""
+		if len(reasons) > 1 && len(models[why]) > 0 {
+			in = " in " + words.AndList(models[why])
+		}
+		notes = append(notes, fmt.Sprintf("Not computed (clustered errors)%s: %s.", mdText(in), mdText(why)))
+	}
+	return out, notes
 }
 
 // mdMark begins a table cell that is Markdown already (md); any other cell

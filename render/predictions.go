@@ -158,8 +158,12 @@ func writePredictionPanel(d *doc, r *runner.Result, or *runner.OutcomeResult, fi
 	} else if len(xs) == 1 {
 		span = "is at its only value in the data"
 	}
-	d.p("Probability of each category under the chosen model when %s %s, with %s. Standard errors, in brackets, are delta-method approximations from the model's covariance matrix.",
-		mdCode(pf.focus), span, mdText(pf.heldAt()))
+	na := ""
+	if res.NotEstimable != nil && slices.ContainsFunc(pred.SE, math.IsNaN) {
+		na = fmt.Sprintf(" An error shown as n/a is not available: at that point the prediction depends on parameters of %s whose clustered standard errors are not estimable (see the warning under the chosen model); the probability itself stands.", or.Chosen.ID)
+	}
+	d.p("Probability of each category under the chosen model when %s %s, with %s. Standard errors, in brackets, are delta-method approximations from the model's covariance matrix.%s",
+		mdCode(pf.focus), span, mdText(pf.heldAt()), na)
 	head := []string{pf.focus}
 	for _, l := range res.Categories {
 		head = append(head, "P("+l+")")

@@ -1125,3 +1125,14 @@ func PooledVariances(pl *impute.Pooled, j int) (within, between, total float64) 
 	k := j*pl.P + j
 	return pl.Within[k], pl.Between[k], pl.Total[k]
 }
+
+// PooledDF is the Barnard-Rubin degrees of freedom of parameter j of a
+// pooled fit, NaN for a parameter whose pooled standard error is not given
+// (as PooledVariances); the fit's own DF keep the number, which the
+// references of combinations that do not load on such parameters read.
+func PooledDF(pl *impute.Pooled, j int) float64 {
+	if math.IsNaN(pl.SE[j]) {
+		return math.NaN()
+	}
+	return pl.DF[j]
+}

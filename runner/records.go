@@ -242,7 +242,7 @@ func imputationRecord(or *OutcomeResult, sampling bool) *ImputationRecord {
 		for j, n := range f.Result.ParamNames {
 			w, b, t := PooledVariances(pl, j)
 			pp := PoolingParam{Name: n, Estimate: pl.Estimate[j], Within: w, Between: b, Total: t, RIV: pl.RIV[j], FMI: pl.FMI[j]}
-			pp.DF = finiteOrNull(pl.DF[j])
+			pp.DF = finiteOrNull(PooledDF(pl, j))
 			pf.Parameters = append(pf.Parameters, pp)
 		}
 		rec.Pooling = append(rec.Pooling, pf)
