@@ -366,6 +366,21 @@ func mistakeItems(dir string) []badInput {
 				if code != 0 || !strings.Contains(e, want) {
 					t.Errorf("run: exit %d, want %q in\n%s", code, want, e)
 				}
+				// ordplan init, which declares the codes found, marks the
+				// code to be checked; declared without it, the code is
+				// refused with the way to mark it missing.
+				plan := filepath.Join(dir, "W31init.yaml")
+				if _, e, code := runCLI("init", plan, "--data", filepath.Join(dir, "W31.csv"), "--outcome", "y"); code != 0 {
+					t.Fatalf("init: exit %d\n%s", code, e)
+				}
+				b, err := os.ReadFile(plan)
+				if want := `categories: [1, 2, 3, 4, 9]   # EDIT: code 9 lies apart from the others, as codes for "don't know" or a missing answer often do: if it is not a point of the scale, remove it here and list it as missing (dictionary: "y": {missing: ["9"]})`; err != nil || !strings.Contains(string(b), want) {
+					t.Errorf("init: want %q in\n%s", want, b)
+				}
+				_, e, code = runCLI(fitArgs(filepath.Join(dir, "W31.csv"), "--categories", "1,2,3,4", "--predictors", "a,b")...)
+				if want := `W31.csv:9: column "y": value "9" is not one of the declared categories: "1", "2", "3", "4" (add it to the categories, or list it among the missing-value markers)`; code != 1 || !strings.Contains(e, want) {
+					t.Errorf("fit --categories 1,2,3,4: exit %d, want %q in\n%s", code, want, e)
+				}
 			}},
 		{id: "P66", name: "ordplan init into a folder that does not exist", args: []string{"init", filepath.Join(dir, "P66-nodir", "x.yaml"), "--data", filepath.Join(dir, "d.csv")}, code: 1,
 			want:  []string{"ordplan: init: cannot write P66-nodir/x.yaml: the folder P66-nodir does not exist: make it first, or give another path"},

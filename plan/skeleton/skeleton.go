@@ -221,6 +221,9 @@ func Write(in Input) ([]byte, error) {
 		switch {
 		case in.HaveData && kinds[outcome].Candidate && !c.Numeric:
 			w("    categories: [%s]   # EDIT: put them in order, lowest first", yamlList(c.Values))
+		case in.HaveData && c.Numeric && !c.Many && data.StrayCodeAt(c.Values) >= 0:
+			code := c.Values[data.StrayCodeAt(c.Values)]
+			w("    categories: [%s]   # EDIT: code %s lies apart from the others, as codes for \"don't know\" or a missing answer often do: if it is not a point of the scale, remove it here and list it as missing (dictionary: %s {missing: [\"%s\"]})%s", yamlList(c.Values), code, yamlString(c.Name)+":", code, zeroFraction(c))
 		case in.HaveData && c.Numeric && !c.Many:
 			w("    categories: [%s]   # lowest first; integer codes as found%s", yamlList(c.Values), zeroFraction(c))
 		default:

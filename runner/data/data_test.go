@@ -74,7 +74,7 @@ func TestReadErrors(t *testing.T) {
 		{"negative weight", "y,w\n1,-2\n2,1\n", Options{Outcome: "y", Weights: "w"}, 2, "w",
 			`t.csv:2: column "w": weight "-2" is negative (weights must be zero or more; a row of weight 0 is dropped)`},
 		{"undeclared category", "y,a\nlow,1\nmedium,2\n", labelled, 3, "y",
-			`t.csv:3: column "y": value "medium" is not one of the declared categories: "low", "mid", "high"`},
+			`t.csv:3: column "y": value "medium" is not one of the declared categories: "low", "mid", "high" (add it to the categories, or list it among the missing-value markers)`},
 		{"outcome not integer", "y,a,b\n1,2,3\n2.5,2,3\n", opts, 3, "y",
 			`t.csv:3: column "y": value "2.5" is not an integer category code (declare the categories to use text labels)`},
 		{"outcome text without categories", "y,a,b\nlow,2,3\n", opts, 2, "y",

@@ -572,7 +572,10 @@ func (r *reader) outcomeHint(col, cell, ref string) string {
 		return h
 	}
 	if len(r.opt.Categories) > 0 {
-		return levelHint(cell, r.opt.Categories, "category", "write the categories as the data do")
+		if h := levelHint(cell, r.opt.Categories, "category", "write the categories as the data do"); h != "" {
+			return h
+		}
+		return " (add it to the categories, or list it among the missing-value markers)"
 	}
 	return ""
 }
@@ -1047,6 +1050,31 @@ func CodeGapNote(outcome string, labels []string) string {
 	return note
 }
 
+// StrayCodeAt is the index among integer outcome codes (labels,
+// ascending) of the one that lies apart as a code for a missing answer
+// does (see strayCode), -1 when none does; ordplan init marks it.
+func StrayCodeAt(labels []string) int {
+	k := len(labels)
+	if k < 3 {
+		return -1
+	}
+	codes := make([]int64, k)
+	for i, l := range labels {
+		c, err := strconv.ParseInt(l, 10, 64)
+		if err != nil {
+			return -1
+		}
+		codes[i] = c
+	}
+	switch {
+	case codes[k-1] >= 8 && codes[k-1]-codes[k-2] >= 2 && codes[k-1]-codes[k-2] > codes[k-2]-codes[0]:
+		return k - 1
+	case codes[0] < 0 && codes[1]-codes[0] >= 2 && codes[1]-codes[0] > codes[k-1]-codes[1]:
+		return 0
+	}
+	return -1
+}
+
 // strayCode says, of an outcome whose categories are its integer codes as
 // found (labels, ascending), that its highest code, 8 or more, lies
 // further from the next than the other codes span (9 beside 1 to 4, 99
@@ -1056,31 +1084,14 @@ func CodeGapNote(outcome string, labels []string) string {
 // a missing answer do; "" when neither. Such a code was analysed as a
 // category at the end of the scale.
 func strayCode(outcome string, labels []string) string {
-	k := len(labels)
-	if k < 3 {
+	i := StrayCodeAt(labels)
+	if i < 0 {
 		return ""
 	}
-	codes := make([]int64, k)
-	for i, l := range labels {
-		c, err := strconv.ParseInt(l, 10, 64)
-		if err != nil {
-			return ""
-		}
-		codes[i] = c
-	}
-	var code, end string
-	var rest []int64
-	switch {
-	case codes[k-1] >= 8 && codes[k-1]-codes[k-2] >= 2 && codes[k-1]-codes[k-2] > codes[k-2]-codes[0]:
-		code, end, rest = labels[k-1], "highest", codes[:k-1]
-	case codes[0] < 0 && codes[1]-codes[0] >= 2 && codes[1]-codes[0] > codes[k-1]-codes[1]:
-		code, end, rest = labels[0], "lowest", codes[1:]
-	default:
-		return ""
-	}
-	keep := make([]string, len(rest))
-	for i, c := range rest {
-		keep[i] = strconv.FormatInt(c, 10)
+	code, end := labels[i], "highest"
+	keep := slices.Delete(slices.Clone(labels), i, i+1)
+	if i == 0 {
+		end = "lowest"
 	}
 	return fmt.Sprintf("Code %s lies apart from the others (%s to %s), as codes for \"don't know\" or a missing answer often do: it was analysed as the %s category; if it is not a point of the scale, list it as missing (dictionary.%s.missing: [\"%s\"]; ordplan fit: --missing-codes %s=%s), or declare the categories (outcomes[].categories: [%s])",
 		code, keep[0], keep[len(keep)-1], end, outcome, code, outcome, code, strings.Join(keep, ", "))

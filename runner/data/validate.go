@@ -186,7 +186,7 @@ func (r *reader) validateRecords(cols []ruled, ve *ValidationError) error {
 			switch {
 			case c.Outcome && c.labels != nil:
 				if _, ok := declaredCategory(c.labels, cell, r.opt.Dialect.mark()); !ok {
-					msg = "value " + quoteCell(cell) + " is not one of the declared categories: " + quoteList(c.Categories) + " (" + c.Key + "; the data dictionary describes the whole file, rows outside the plan's subset too)"
+					msg = "value " + quoteCell(cell) + " is not one of the declared categories: " + quoteList(c.Categories) + " (" + c.Key + "; the data dictionary describes the whole file, rows outside the plan's subset too; add it to the categories, or list it among the missing-value markers, such as dictionary." + c.Column + ".missing)"
 				}
 			case c.Outcome:
 				if _, bad := parseCode(cell, r.opt.Dialect.mark()); bad != "" {
