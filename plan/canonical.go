@@ -45,8 +45,11 @@ type canonPlan struct {
 	FewClusters *fit.ClusterCorrection `json:"few_clusters,omitempty"`
 	Report      canonReport            `json:"report"`
 	Inference   canonInference         `json:"inference"`
-	Dictionary  map[string]any         `json:"dictionary,omitempty"`
-	Assumptions map[string]any         `json:"assumptions,omitempty"`
+	// SelectionStability is absent when not asked, so that plans
+	// without it keep their canonical form.
+	SelectionStability *canonStability `json:"selection_stability,omitempty"`
+	Dictionary         map[string]any  `json:"dictionary,omitempty"`
+	Assumptions        map[string]any  `json:"assumptions,omitempty"`
 	// Sensitivity is absent when the plan has none, so that plans
 	// without it keep their canonical form.
 	Sensitivity []canonSensitivity `json:"sensitivity,omitempty"`
@@ -181,12 +184,13 @@ func (p *Plan) canonical() canonPlan {
 			ConfidenceLevel: p.Report.ConfidenceLevel,
 			Timestamp:       p.Report.Timestamp,
 		},
-		Inference:   p.Inference.canonical(),
-		Dictionary:  p.canonicalDictionary(),
-		Assumptions: p.Assumptions.canonical(),
-		Sensitivity: p.canonicalSensitivity(),
-		Outcomes:    []canonOutcome{},
-		Rules:       []map[string]any{},
+		Inference:          p.Inference.canonical(),
+		SelectionStability: p.SelectionStability.canonical(),
+		Dictionary:         p.canonicalDictionary(),
+		Assumptions:        p.Assumptions.canonical(),
+		Sensitivity:        p.canonicalSensitivity(),
+		Outcomes:           []canonOutcome{},
+		Rules:              []map[string]any{},
 	}
 	if p.Data.Weights != "" {
 		c.Data.WeightKind = optional(p.Data.WeightKind)
@@ -379,4 +383,16 @@ func nonDefaultCorrection(c fit.ClusterCorrection) *fit.ClusterCorrection {
 		return nil
 	}
 	return &c
+}
+
+type canonStability struct {
+	Resamples int    `json:"resamples"`
+	Seed      uint64 `json:"seed"`
+}
+
+func (s *SelectionStability) canonical() *canonStability {
+	if s == nil {
+		return nil
+	}
+	return &canonStability{Resamples: s.Resamples, Seed: s.Seed}
 }

@@ -25,6 +25,7 @@ func (d *decoder) check(p *Plan) {
 	d.checkSubsetMarkers(p)
 	d.checkDataOptions(p)
 	d.checkImputation(p)
+	d.checkStability(p)
 	d.checkApproaches(p)
 	d.checkPartial(p)
 	d.checkStarts(p)
@@ -276,4 +277,19 @@ func (d *decoder) sourceKey(p *Plan, col string) string {
 		}
 	}
 	return "predictors"
+}
+
+// checkStability refuses selection_stability on multiply imputed data
+// (data.imputed, or data.missing: impute): resampling the incomplete rows
+// and imputing each resample again is not built.
+func (d *decoder) checkStability(p *Plan) {
+	if p.SelectionStability == nil {
+		return
+	}
+	switch {
+	case p.Data.Imputed != nil:
+		d.errAt("selection_stability", "is not available with data.imputed: the bootstrap would have to resample the incomplete rows and impute each resample again, which sets made elsewhere cannot; remove selection_stability, or analyse the complete rows")
+	case p.Data.Imputes():
+		d.errAt("selection_stability", "is not available with data.missing: impute (resampling the incomplete rows and imputing each resample is not built yet); remove selection_stability, or set data.missing: drop for a stability study of the complete rows")
+	}
 }

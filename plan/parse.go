@@ -344,6 +344,9 @@ func (d *decoder) decodePlan(root *yaml.Node, p *Plan) {
 		terms = append(terms, o.Terms...)
 	}
 	d.decodeInference(m.get("inference"), &p.Inference, p.Dir, terms)
+	if v := m.get("selection_stability"); v != nil {
+		p.SelectionStability = d.decodeStability(v)
+	}
 	if v := m.get("dictionary"); v != nil {
 		p.Dictionary = d.decodeDictionary(v)
 	}
@@ -353,4 +356,25 @@ func (d *decoder) decodePlan(root *yaml.Node, p *Plan) {
 	if v := m.get("deviations"); v != nil {
 		p.Deviations = d.decodeDeviations(v)
 	}
+}
+
+// decodeStability reads selection_stability: both keys are required,
+// resamples within the bounds Spec gives.
+func (d *decoder) decodeStability(n *yaml.Node) *SelectionStability {
+	m := d.mapping(n, "selection_stability", stabilityKeys)
+	if m == nil {
+		return nil
+	}
+	st := &SelectionStability{}
+	if m.required("resamples") != nil {
+		if r, ok := m.wholeInRange(Spec.find("selection_stability.resamples")); ok {
+			st.Resamples = int(r)
+		}
+	}
+	if v := m.required("seed"); v != nil {
+		if s, ok := d.unsigned(v, m.at("seed")); ok {
+			st.Seed = s
+		}
+	}
+	return st
 }

@@ -53,9 +53,10 @@ var sensitivityItemKeys = []string{"name", "why", "change"}
 const writeSetsKey = "data.imputation.write_sets"
 
 // sensitivityLeftOut are the keys taken out of the primary plan before a
-// sensitivity analysis is read (see Sensitivity.Plan).
+// sensitivity analysis is read (selection_stability: the bootstrap is of
+// the primary analysis only; see Sensitivity.Plan).
 var sensitivityLeftOut = []string{"sensitivity", "deviations", "inference", "assumptions",
-	"report.focus_predictor", "report.panels_by", writeSetsKey}
+	"report.focus_predictor", "report.panels_by", writeSetsKey, "selection_stability"}
 
 // withSensitivity adds to spec the sensitivity key, whose changes are the
 // keys of SensitivityKeys as spec describes them.

@@ -58,6 +58,7 @@ var (
 	groupKeys      = keysAt("models.partial.groups")
 	testsKeys      = keysAt("tests")
 	reportKeys     = keysAt("report")
+	stabilityKeys  = keysAt("selection_stability")
 )
 
 // orList renders ["a", "b", "c"] as "a, b or c".

@@ -573,7 +573,11 @@ func selectionSentence(r *runner.Result) string {
 	case !chose:
 		return "The plan's one candidate model was not selected among others, so its standard errors, p-values and intervals leave out no uncertainty of a choice between models; they rest on its form (link, terms, effect structure) being right."
 	}
-	return "The chosen model's standard errors, p-values and intervals (of its estimates, predicted probabilities and marginal effects) treat it as fixed in advance, not as the result of the selection made by the rules, and of any stepwise choice of partial effects, on the same data: they leave out the uncertainty of that selection, so intervals tend to be too narrow and p-values too small."
+	s := "The chosen model's standard errors, p-values and intervals (of its estimates, predicted probabilities and marginal effects) treat it as fixed in advance, not as the result of the selection made by the rules, and of any stepwise choice of partial effects, on the same data: they leave out the uncertainty of that selection, so intervals tend to be too narrow and p-values too small."
+	if r.Plan.SelectionStability != nil {
+		s += " The section on the stability of the model choice shows, by bootstrap resamples, how often the same rules choose the same model and reject the hypotheses on data like these; it measures that uncertainty, it does not remove it from the intervals."
+	}
+	return s
 }
 
 // chosenSentence is s when some outcome has a chosen model (whose

@@ -197,6 +197,9 @@ func writeMethods(d *doc, r *runner.Result) {
 		} else {
 			s = append(s, "No model met every rule.")
 		}
+		if sm := stabilityMethods(r, or); sm != "" {
+			s = append(s, sm)
+		}
 		if sampling {
 			// No likelihood-based statistic is a test under sampling
 			// weights: only the descriptive comparisons are named.

@@ -25,6 +25,7 @@ func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	writeOverallFit(d, or)
 	writeTests(d, or)
 	writeDecisionLog(d, or)
+	writeStability(d, r, or)
 	writeBoundaryEffects(d, r, or)
 	if or.Chosen == nil {
 		writeHypotheses(d, r, or)

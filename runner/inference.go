@@ -138,9 +138,7 @@ func (nr *NewRows) Predicted(i int) bool {
 // runInference computes what the plan's inference section asks for.
 func runInference(an *Analysis, or *OutcomeResult) error {
 	inf := an.Inference
-	for _, h := range inf.Hypotheses {
-		or.Hypotheses = append(or.Hypotheses, hypothesisTests(h, or, an.Level)...)
-	}
+	testHypotheses(an, or)
 	if or.Chosen == nil {
 		return nil
 	}
@@ -163,6 +161,14 @@ func runInference(an *Analysis, or *OutcomeResult) error {
 		or.NewRows = nr
 	}
 	return nil
+}
+
+// testHypotheses tests the plan's hypotheses in every model that has
+// their parameters.
+func testHypotheses(an *Analysis, or *OutcomeResult) {
+	for _, h := range an.Inference.Hypotheses {
+		or.Hypotheses = append(or.Hypotheses, hypothesisTests(h, or, an.Level)...)
+	}
 }
 
 // marginalSet computes one kind of marginal effects (average, means,

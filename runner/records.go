@@ -90,8 +90,11 @@ type OutcomeDecisions struct {
 	Fallback          bool               `json:"fallback"`
 	Notes             []string           `json:"notes"`
 	Final             map[string]Verdict `json:"final_verdicts"`
-	Overall           []OverallRecord    `json:"overall_fit"`
-	Lipsitz           *fit.Lipsitz       `json:"lipsitz,omitempty"`
+	// SelectionStability: the decision procedure repeated on bootstrap
+	// resamples (selection_stability; absent when the plan does not ask).
+	SelectionStability *Stability      `json:"selection_stability,omitempty"`
+	Overall            []OverallRecord `json:"overall_fit"`
+	Lipsitz            *fit.Lipsitz    `json:"lipsitz,omitempty"`
 	// PatternSplit: the Pulkstenis-Robinson tests of the chosen model.
 	PatternSplit *PatternSplitRecord `json:"pulkstenis_robinson,omitempty"`
 	// GOFPooling: on imputed data, how those tests were pooled.
@@ -350,6 +353,7 @@ func BuildDecisions(r *Result) *Decisions {
 		od.PatternSplit = or.PatternSplit
 		od.GOFPooling = or.GOFPooling
 		od.Hypotheses = or.Hypotheses
+		od.SelectionStability = or.Stability
 		od.TermTests = or.TermTests
 		if r.Analysis != nil && termTestsOff(r.Analysis) && or.Chosen != nil {
 			od.TermTestsOff = "switched off by the plan (inference.term_tests: none)"

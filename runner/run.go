@@ -30,6 +30,12 @@ type Options struct {
 	// Analysis is the name of the sensitivity analysis this run is (""
 	// for the primary analysis): its jobs carry it (Job.Analysis).
 	Analysis string
+	// NoStability leaves out selection_stability's resamples (a power
+	// study's replicates, the sensitivity analyses).
+	NoStability bool
+	// Resampled, when set, hears of every finished resample of
+	// selection_stability: done of total.
+	Resampled func(done, total int)
 }
 
 // Progress hears of the fits of a run as they finish.
@@ -93,6 +99,7 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 		return nil, err
 	}
 	adjustHypotheses(an, res)
+	runStability(an, res, opt)
 	res.Sensitivity = runSensitivity(p, opt)
 	return res, nil
 }
@@ -125,43 +132,13 @@ func runOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash 
 	if err := an.CheckDesign(r, dz, or.FitData); err != nil {
 		return nil, err
 	}
-	fopt := an.Fit
-	settle := an.Errors.Settle(ds, or.FitData, or.Terms)
-	links := an.Models.Links
-	backward := an.Models.Backward()
-
-	// 1. The partial set of each approach: listed, or selected stepwise
-	// (each fit settled as the grid's are: the near-collinearity flag and
-	// the plan's standard errors).
-	swopt := fopt
-	swopt.Settle = settle
-	or.FreeSets, or.Stepwise = freeSets(an, or.Terms, fit.DataStepwiseFits(or.FitData, swopt), backward, opt.Workers)
-
-	// 2. The grid of candidate fits and the auxiliary fits the tests need.
-	jobs, notes := gridJobs(an, or.Terms, or.FreeSets, backward)
-	or.Notes = append(or.Notes, notes...)
-	target := gridTarget{label: oc.Column, data: or.FitData, fit: fopt, settle: settle,
-		remote: &remoteData{outcome: oc.Column, dataFile: an.DataFile, dataHash: hash, dataOptions: r.Options}}
+	remote := &remoteData{outcome: oc.Column, dataFile: an.DataFile, dataHash: hash, dataOptions: r.Options}
 	if !dz.Trivial() {
-		target.remote.design = dz.Freeze(r.Design)
+		remote.design = dz.Freeze(r.Design)
 	}
-	if err := fitGrid(jobs, target, opt); err != nil {
+	if err := decideOutcome(an, r, or, opt, remote); err != nil {
 		return nil, err
 	}
-	or.Fits = jobs
-	if w := an.SingularModels(r, ds, jobs, len(ds.Categories), allColumns(or.Terms)); w != "" {
-		or.Notes = append(or.Notes, w)
-	}
-
-	// 3. Tests of the parallel-lines assumption and nested LR tests.
-	for _, ap := range an.Models.Approaches {
-		for _, l := range links {
-			or.Tests = append(or.Tests, testBlock(an, or, ap, l))
-		}
-	}
-
-	// 4. The decision rules, in order.
-	applyRules(an, or)
 
 	// 5. Overall fit of the candidates and goodness of fit of the chosen
 	// model.
@@ -178,6 +155,50 @@ func runOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash 
 		runTermTests(an, or, opt)
 	}
 	return or, nil
+}
+
+// decideOutcome is the decision procedure on or's data (Data, FitData,
+// Design and Terms set): the partial sets, the grid of fits and the
+// auxiliary fits the tests need, the tests and the decision rules, in
+// order. remote, when set, lets the run's Executor make the grid's fits
+// elsewhere; the resamples of selection_stability (stability.go) take
+// this same path with none.
+func decideOutcome(an *Analysis, r Reading, or *OutcomeResult, opt Options, remote *remoteData) error {
+	ds, oc := or.Data, or.Outcome
+	fopt := an.Fit
+	settle := an.Errors.Settle(ds, or.FitData, or.Terms)
+	links := an.Models.Links
+	backward := an.Models.Backward()
+
+	// 1. The partial set of each approach: listed, or selected stepwise
+	// (each fit settled as the grid's are: the near-collinearity flag and
+	// the plan's standard errors).
+	swopt := fopt
+	swopt.Settle = settle
+	or.FreeSets, or.Stepwise = freeSets(an, or.Terms, fit.DataStepwiseFits(or.FitData, swopt), backward, opt.Workers)
+
+	// 2. The grid of candidate fits and the auxiliary fits the tests need.
+	jobs, notes := gridJobs(an, or.Terms, or.FreeSets, backward)
+	or.Notes = append(or.Notes, notes...)
+	target := gridTarget{label: oc.Column, data: or.FitData, fit: fopt, settle: settle, remote: remote}
+	if err := fitGrid(jobs, target, opt); err != nil {
+		return err
+	}
+	or.Fits = jobs
+	if w := an.SingularModels(r, ds, jobs, len(ds.Categories), allColumns(or.Terms)); w != "" {
+		or.Notes = append(or.Notes, w)
+	}
+
+	// 3. Tests of the parallel-lines assumption and nested LR tests.
+	for _, ap := range an.Models.Approaches {
+		for _, l := range links {
+			or.Tests = append(or.Tests, testBlock(an, or, ap, l))
+		}
+	}
+
+	// 4. The decision rules, in order.
+	applyRules(an, or)
+	return nil
 }
 
 // freeSets returns the partial set of each approach: terms, listed in

@@ -33,7 +33,7 @@ func runSensitivity(p *plan.Plan, opt Options) []*SensitivityResult {
 	var out []*SensitivityResult
 	for _, s := range p.Sensitivity {
 		sopt := opt
-		sopt.NoTermTests, sopt.NoSensitivity, sopt.Analysis = true, true, s.Name
+		sopt.NoTermTests, sopt.NoSensitivity, sopt.NoStability, sopt.Analysis = true, true, true, s.Name
 		if opt.Progress != nil {
 			sopt.Progress = namedProgress{opt.Progress, s.Name}
 		}

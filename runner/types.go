@@ -76,6 +76,9 @@ type OutcomeResult struct {
 	GOFPooling *GOFPooling
 
 	Hypotheses []HypothesisResult // the plan's hypotheses, per model
+	// Stability is selection_stability's bootstrap of the decision
+	// procedure (nil: not asked).
+	Stability *Stability
 	// TermTests: each term of the chosen model tested (Wald and
 	// likelihood ratio); nil without a usable chosen model.
 	TermTests []TermTest

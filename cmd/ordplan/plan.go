@@ -142,7 +142,8 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	defer lock.Unlock()
 	opt := runner.Options{Workers: *workers}
 	if !*quiet {
-		opt.Progress = lock.progress(stderr)
+		pr := lock.progress(stderr)
+		opt.Progress, opt.Resampled = pr, pr.Resampled
 	}
 	var queueLog io.Writer
 	if !*quiet {

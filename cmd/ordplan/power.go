@@ -109,7 +109,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		// jobs carry the replicate's data hash, so replicates never share
 		// results.
 		opt.Run = func(q *plan.Plan) (*runner.Result, error) {
-			return runOnQueue(ctx, c, q, runner.Options{Workers: 1, NoTermTests: true, NoSensitivity: true}, qlog)
+			return runOnQueue(ctx, c, q, runner.Options{Workers: 1, NoTermTests: true, NoSensitivity: true, NoStability: true}, qlog)
 		}
 	}
 	pr, err := simulate.Power(p, opt)

@@ -60,6 +60,12 @@ func (p *progress) Replicated(n, done, total int) {
 	p.step(fmt.Sprintf("n = %d", n), "replicates", done, total)
 }
 
+// Resampled reports selection_stability's bootstrap resamples finished
+// so far (runner.Options.Resampled).
+func (p *progress) Resampled(done, total int) {
+	p.step("selection stability", "bootstrap resamples", done, total)
+}
+
 // Imputed implements runner.ImputationProgress: the imputed sets of an
 // outcome made so far.
 func (p *progress) Imputed(outcome string, done, total int) {

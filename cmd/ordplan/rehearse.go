@@ -103,7 +103,8 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	}
 	opt := runner.Options{Workers: *workers}
 	if !*quiet {
-		opt.Progress = olock.progress(stderr)
+		pr := olock.progress(stderr)
+		opt.Progress, opt.Resampled = pr, pr.Resampled
 	}
 	res, err := runner.Run(&q, opt)
 	if err != nil {

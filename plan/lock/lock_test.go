@@ -410,3 +410,32 @@ func TestDerivedKeyFollowsItsKey(t *testing.T) {
 		t.Errorf("report.title written: %v", err)
 	}
 }
+
+// TestSelectionStabilityIsRegistered: selection_stability is part of the
+// frozen form: added after freezing, or with other resamples or another
+// seed, it is a change that needs a reason; a plan without it keeps the
+// canonical bytes it had before the key existed (omitted when absent).
+func TestSelectionStabilityIsRegistered(t *testing.T) {
+	withStability := basePlan + "selection_stability: {resamples: 200, seed: 5}\n"
+	p, _ := setup(t, withStability)
+	st, err := Check(p, false)
+	if err == nil || len(st.Changes) != 1 || st.Changes[0].Path != "selection_stability" || st.Changes[0].From != "(absent)" {
+		t.Fatalf("added after freezing: %v %+v", err, st.Changes)
+	}
+	p, _ = setupFrom(t, withStability, strings.Replace(withStability, "seed: 5", "seed: 6", 1))
+	st, err = Check(p, false)
+	if err == nil || len(st.Changes) != 1 || st.Changes[0].Path != "selection_stability.seed" {
+		t.Fatalf("seed changed: %v %+v", err, st.Changes)
+	}
+	p, _ = setupFrom(t, withStability, withStability)
+	if st, err := Check(p, false); err != nil || st.State != StateMatches {
+		t.Fatalf("unchanged: %v %+v", err, st)
+	}
+	base, err := plan.Parse([]byte(basePlan), "p.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if strings.Contains(string(base.Canonical()), "selection_stability") {
+		t.Error("a plan without selection_stability writes it in its canonical form")
+	}
+}

@@ -1,0 +1,215 @@
+package render
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+
+	"ordplan/internal/words"
+	"ordplan/render/numfmt"
+	"ordplan/runner"
+)
+
+// Stability of the model choice (selection_stability): the decision
+// procedure repeated on bootstrap resamples (runner.Stability). One
+// section per outcome after the decision log, a CSV table, a Methods
+// sentence.
+
+// stabilityUnits says what each resample drew, for the report and the
+// Methods: "1734 rows", "24 clusters of `district`", ...
+func stabilityUnits(r *runner.Result, st *runner.Stability) string {
+	switch st.Unit {
+	case runner.UnitClusters:
+		return fmt.Sprintf("%d clusters of %s, each drawn whole (all its rows), a cluster drawn twice counting as two clusters", st.Units, mdCode(r.Plan.Data.Cluster))
+	case runner.UnitWeighted:
+		return fmt.Sprintf("%d units, the frequency weights of %s read as that many units (a row of weight w is w units, so a resample's weights are multinomial counts)", st.Units, mdCode(r.Plan.Data.Weights))
+	}
+	return fmt.Sprintf("%d rows", st.Units)
+}
+
+// writeStability writes the section of one outcome's stability study.
+func writeStability(d *doc, r *runner.Result, or *runner.OutcomeResult) {
+	st := or.Stability
+	if st == nil {
+		return
+	}
+	d.h(3, "Stability of the model choice")
+	sampling := ""
+	if r.Analysis != nil && r.Analysis.Errors.Sampling {
+		sampling = fmt.Sprintf(" The sampling weights of %s go with their rows and are rescaled to sum to the rows drawn; the bootstrap ignores any survey design beyond them (strata, stages, finite-population corrections).", mdCode(r.Plan.Data.Weights))
+	}
+	d.p("The plan (selection_stability) asks how stable the choice the rules made is. The whole decision procedure, the same grid of candidates, the same tests and the same rules in order%s, was run again on %d bootstrap resamples of the data used here, drawn with seed %d: each resample draws, with replacement, as many units as the data have, %s.%s The terms' constants (centring means, scales, knots, polynomial bases) stay those of the primary analysis. Each resample's fits were made on this machine (not sent to queue workers), one fit at a time per resample, several resamples at once.",
+		stepwiseWords(r), st.Resamples, st.Seed, stabilityUnits(r, st), sampling)
+
+	var rows [][]string
+	var primary *runner.StabilityModel
+	top := st.Models[0]
+	for i, m := range st.Models {
+		mark := ""
+		if m.Primary {
+			mark = "chosen by the primary analysis"
+			primary = &st.Models[i]
+		}
+		if m.Fallback > 0 {
+			mark = strings.TrimPrefix(mark+fmt.Sprintf("; the plan's fallback in %d", m.Fallback), "; ")
+		}
+		if m.Chosen.Count > top.Chosen.Count {
+			top = m
+		}
+		rows = append(rows, []string{m.Model, fmt.Sprintf("%d of %d", m.Chosen.Count, m.Chosen.Of), m.Chosen.Text(""), mark})
+	}
+	none := ""
+	if or.Chosen == nil {
+		none = "the primary analysis's result"
+	}
+	rows = append(rows, []string{"no model could be chosen", fmt.Sprintf("%d of %d", st.None.Count, st.None.Of), st.None.Text(""), none})
+	if st.Failed.Count > 0 {
+		rows = append(rows, []string{"the procedure failed", fmt.Sprintf("%d of %d", st.Failed.Count, st.Failed.Of), st.Failed.Text(""), ""})
+	}
+	d.captioned("Model chosen in the bootstrap resamples (share with its Monte Carlo standard error)").table([]string{"Model", "Resamples", "Share (MC se)", "Note"}, rows)
+	d.p("%s", stabilityReading(or, st, primary, top))
+	if len(st.Failures) > 0 {
+		d.p("In %d of %d resamples the procedure failed as a whole (no grid could be fitted), counted apart from those where the rules chose nothing; the reasons met first: %s.", st.Failed.Count, st.Resamples, mdText(strings.Join(st.Failures, "; ")))
+	}
+
+	// Which rule rejected which model.
+	rows = nil
+	var quiet []string
+	for i, ru := range st.Rules {
+		final := i < len(or.Rules) && or.Rules[i].Rule.Final()
+		hit := false
+		for _, ms := range ru.Rejected {
+			if ms.Share.Count == 0 {
+				continue
+			}
+			hit = true
+			what := "rejected"
+			if final {
+				what = "not chosen"
+			}
+			rows = append(rows, []string{md(fmt.Sprintf("%d, %s", ru.Number, mdCode(ru.Kind))), ms.Model, what, fmt.Sprintf("%d of %d", ms.Share.Count, ms.Share.Of), ms.Share.Text("")})
+		}
+		if !hit {
+			quiet = append(quiet, fmt.Sprintf("%d (%s)", ru.Number, mdCode(ru.Kind)))
+		}
+	}
+	d.p("Which rule drives the changes: how often each rule, in the resamples where it was reached, rejected each model (the last rule's \"not chosen\" are the models it passed over for another). A model a rule keeps in the primary analysis but rejects in many resamples is where the choice turns.")
+	if len(rows) > 0 {
+		d.captioned("Rejections by each rule over the bootstrap resamples").table([]string{"Rule", "Model", "Verdict", "Resamples", "Share (MC se)"}, rows)
+	}
+	if len(quiet) > 0 {
+		d.p("Rule%s %s rejected no model in any resample.", plural(len(quiet)), words.AndList(quiet))
+	}
+
+	if len(st.Hypotheses) > 0 {
+		rows = nil
+		lv := strconv.FormatFloat(100*st.Level, 'f', -1, 64)
+		for _, h := range st.Hypotheses {
+			iv := "(several restrictions in every chosen model that tested it)"
+			switch {
+			case h.Low != nil && h.Estimated < h.Tested:
+				iv = fmt.Sprintf("%s to %s (over the %d resamples where it is a single restriction)", numfmt.Est(*h.Low), numfmt.Est(*h.High), h.Estimated)
+			case h.Low != nil:
+				iv = numfmt.Est(*h.Low) + " to " + numfmt.Est(*h.High)
+			case h.Tested == 0:
+				iv = "(never tested)"
+			}
+			rows = append(rows, []string{md(mdCode(h.Hypothesis)), fmt.Sprintf("%d of %d", h.Tested, st.Resamples), fmt.Sprintf("%d of %d", h.Rejected.Count, h.Rejected.Of), h.Rejected.Text(""), iv})
+		}
+		adj := ""
+		if m := r.Plan.Inference.Multiplicity; m != "" && m != "none" {
+			adj = fmt.Sprintf(" on the p-value adjusted for multiplicity (%s) over the outcomes of that resample, as the run decides", m)
+		}
+		d.p("The plan's hypotheses in the model chosen in each resample: rejected when its p-value is below %s (1 minus the report's confidence level)%s; a resample whose chosen model lacks the hypothesis's parameters, or that chose nothing, does not test it and does not count as a rejection. The interval is the %s%% percentile interval of the estimate (left side minus right side) over the resamples that tested it, for a single restriction.", numfmt.Num(st.Alpha), adj, lv)
+		d.captioned("Hypotheses over the bootstrap resamples, each in the model chosen there").table([]string{"Hypothesis", "Tested in", "Rejected in", "Share rejected (MC se)", lv + "% percentile interval of the estimate"}, rows)
+		d.p("These shares measure how reproducible the plan's conclusion is when the whole procedure, the choice of model included, is repeated on data like these: they are not the power of the test (which would need data drawn from a stated truth; `ordplan power`), nor p-values, and the percentile intervals are not confidence intervals of the chosen model's parameters, whose meaning changes with the model chosen.")
+	}
+	d.p("Assumptions and limits of this study: it is a bootstrap of a selection procedure on the %s used, so every resample resembles these data, not a new sample from the population; the shares are estimates, with the Monte Carlo error in brackets from %d resamples and a sampling error from the data themselves that the brackets do not show. A resample repeats units, and a model that fits the data only roughly fits a resample more roughly still: a test of a restriction tends to give a larger statistic in a resample (on average about its value in the data plus its degrees of freedom), so tests reject restrictions more often in resamples than they would in new samples where the restriction holds, and the shares lean towards the less constrained models. A small share for the model the primary analysis chose means that the choice is fragile: data slightly different would have led the same rules to another model, and the chosen model's intervals, which treat it as fixed in advance, leave that uncertainty out.", unitWord(st), st.Resamples)
+}
+
+// unitWord names the resampled units in a sentence.
+func unitWord(st *runner.Stability) string {
+	switch st.Unit {
+	case runner.UnitClusters:
+		return fmt.Sprintf("%d clusters", st.Units)
+	case runner.UnitWeighted:
+		return fmt.Sprintf("%d frequency-weighted units", st.Units)
+	}
+	return fmt.Sprintf("%d rows", st.Units)
+}
+
+// stepwiseWords adds the stepwise search to the procedure when the plan
+// makes one.
+func stepwiseWords(r *runner.Result) string {
+	if r.Plan.Models.Partial.Select != nil {
+		return " (the stepwise choice of partial effects included)"
+	}
+	return ""
+}
+
+// stabilityReading is the plain reading of the shares of the choice.
+func stabilityReading(or *runner.OutcomeResult, st *runner.Stability, primary *runner.StabilityModel, top runner.StabilityModel) string {
+	if primary == nil {
+		s := fmt.Sprintf("The primary analysis chose no model; the procedure chose none in %d of %d resamples.", st.None.Count, st.Resamples)
+		if top.Chosen.Count > 0 {
+			s += fmt.Sprintf(" The model chosen most often was %s (%d of %d).", top.Model, top.Chosen.Count, st.Resamples)
+		}
+		return s
+	}
+	c := primary.Chosen
+	s := fmt.Sprintf("Plain reading: the primary analysis chose %s, and the same procedure chose it again in %d of %d resamples, a share of %s.", primary.Model, c.Count, c.Of, c.Text("MC se "))
+	switch {
+	case c.Rate < 0.5:
+		s += " That is less than half: the choice is fragile, and the effects reported for the chosen model carry an uncertainty of the choice that their intervals do not show."
+	case c.Rate < 0.8:
+		s += " The choice is repeated more often than not, but far from always: read the effects of the chosen model with the models chosen instead in mind."
+	default:
+		s += " The choice is stable on data like these."
+	}
+	if top.Model != primary.Model && top.Chosen.Count > c.Count {
+		s += fmt.Sprintf(" The model chosen most often was %s (%d of %d).", top.Model, top.Chosen.Count, st.Resamples)
+	}
+	return s
+}
+
+// stabilityCSV is table-stability-OUTCOME.csv: one row per share.
+func stabilityCSV(or *runner.OutcomeResult) (head []string, rows [][]string, ok bool) {
+	st := or.Stability
+	if st == nil {
+		return nil, nil, false
+	}
+	head = []string{"what", "rule", "rule_kind", "model", "hypothesis", "count", "of", "share", "mc_se", "primary_choice", "estimate_low", "estimate_high"}
+	row := func(what, rule, kind, model, hyp string, r runner.Rate, primary bool, lo, hi *float64) {
+		p, l, h := "", "", ""
+		if primary {
+			p = "true"
+		}
+		if lo != nil {
+			l, h = csvNum(*lo), csvNum(*hi)
+		}
+		rows = append(rows, []string{what, rule, kind, model, hyp, strconv.Itoa(r.Count), strconv.Itoa(r.Of), csvNum(r.Rate), csvNum(r.SE), p, l, h})
+	}
+	for _, m := range st.Models {
+		row("chosen", "", "", m.Model, "", m.Chosen, m.Primary, nil, nil)
+	}
+	row("none_chosen", "", "", "", "", st.None, or.Chosen == nil, nil, nil)
+	row("failed", "", "", "", "", st.Failed, false, nil, nil)
+	for _, ru := range st.Rules {
+		for _, ms := range ru.Rejected {
+			row("rejected_by_rule", strconv.Itoa(ru.Number), ru.Kind, ms.Model, "", ms.Share, false, nil, nil)
+		}
+	}
+	for _, h := range st.Hypotheses {
+		row("hypothesis_rejected", "", "", "", h.Hypothesis, h.Rejected, false, h.Low, h.High)
+	}
+	return head, rows, true
+}
+
+// stabilityMethods is the Methods sentence of the stability study.
+func stabilityMethods(r *runner.Result, or *runner.OutcomeResult) string {
+	st := or.Stability
+	if st == nil {
+		return ""
+	}
+	return fmt.Sprintf("The stability of the model choice was assessed, as the plan fixed in advance, by repeating the whole decision procedure (grid, tests and rules, in order) on %d nonparametric bootstrap resamples of the %s used (seed %d), the terms' constants kept from the primary analysis, and reporting how often each model was chosen (with its Monte Carlo standard error), how often each rule rejected each model and how often each hypothesis was rejected in the model chosen in the resample.", st.Resamples, unitWord(st), st.Seed)
+}

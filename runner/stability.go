@@ -1,0 +1,471 @@
+package runner
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"runtime"
+	"slices"
+	"sort"
+	"sync"
+
+	"gonum.org/v1/gonum/stat"
+
+	"ordplan/plan"
+	"ordplan/runner/data"
+)
+
+// Stability is selection_stability for one outcome: the whole decision
+// procedure (decideOutcome: the partial sets, the grid, the tests and the
+// rules, in order) repeated on bootstrap resamples of the rows used, and
+// how often each model was chosen, each rule rejected each model and each
+// hypothesis was rejected in the model chosen in the resample.
+type Stability struct {
+	Resamples int    `json:"resamples"`
+	Seed      uint64 `json:"seed"`
+	// Unit is what was resampled: rows, clusters (data.cluster) or
+	// frequency-weighted units (data.weights, frequency weights: a row of
+	// weight w is w units, and a resample's counts are multinomial).
+	Unit string `json:"unit"`
+	// Units is the number of units of the primary analysis, which every
+	// resample draws with replacement.
+	Units int `json:"units"`
+	// Primary is the model the primary analysis chose ("" none).
+	Primary string `json:"primary_choice"`
+	// Models are the candidates, in the grid's order, each with the share
+	// of resamples that chose it.
+	Models []StabilityModel `json:"models"`
+	// None is the share of resamples whose procedure ran and chose no
+	// model; Failed the share whose procedure failed entirely (Failures
+	// says why, the first resample of each distinct reason).
+	None     Rate     `json:"none_chosen"`
+	Failed   Rate     `json:"failed"`
+	Failures []string `json:"failures,omitempty"`
+	// Rules are the plan's rules in order, each with the share of
+	// resamples in which it rejected each candidate.
+	Rules []StabilityRule `json:"rules"`
+	// Hypotheses are the plan's hypotheses, each rejected or not in the
+	// model chosen in each resample.
+	Hypotheses []StabilityHypothesis `json:"hypotheses,omitempty"`
+	// Alpha is the level a hypothesis counts as rejected at: 1 minus the
+	// report's confidence level, on the adjusted p-value when the plan
+	// corrects for multiplicity.
+	Alpha float64 `json:"alpha,omitempty"`
+	// Level is the coverage of the percentile intervals (the report's).
+	Level float64 `json:"interval_level,omitempty"`
+}
+
+// StabilityModel is how often one candidate was chosen.
+type StabilityModel struct {
+	Model   string `json:"model"`
+	Chosen  Rate   `json:"chosen"`
+	Primary bool   `json:"primary_choice,omitempty"`
+	// Fallback counts the resamples in which it was the plan's fallback
+	// (every candidate rejected), among those in Chosen.
+	Fallback int `json:"fallback,omitempty"`
+}
+
+// StabilityRule is how often one rule rejected each candidate.
+type StabilityRule struct {
+	Number      int          `json:"rule"` // 1-based, as the decision log numbers it
+	Kind        string       `json:"kind"`
+	Description string       `json:"description"`
+	Rejected    []ModelShare `json:"rejected"`
+}
+
+// ModelShare is a share of resamples for one model.
+type ModelShare struct {
+	Model string `json:"model"`
+	Share Rate   `json:"share"`
+}
+
+// StabilityHypothesis is how often one hypothesis was rejected in the
+// model chosen in a resample, and the spread of its estimate there.
+type StabilityHypothesis struct {
+	Hypothesis string `json:"hypothesis"`
+	Line       int    `json:"line"`
+	// Tested counts the resamples whose chosen model has the hypothesis's
+	// parameters and gave a test; Rejected is over every resample.
+	Tested   int  `json:"tested"`
+	Rejected Rate `json:"rejected"`
+	// Low and High are the percentile interval of the estimate over the
+	// Estimated resamples that tested it as a single restriction (nil
+	// when none did).
+	Estimated int      `json:"estimated,omitempty"`
+	Low       *float64 `json:"low,omitempty"`
+	High      *float64 `json:"high,omitempty"`
+}
+
+// stabilityPass is what one resample of one outcome gave.
+type stabilityPass struct {
+	failed   string // the procedure failed entirely: why
+	chosen   string
+	fallback bool
+	rejected map[[2]string]bool // (rule index, model) -> rejected
+	// per plan hypothesis: -1 not tested in the chosen model, 0 kept, 1
+	// rejected; est the single restriction's estimate (NaN: none).
+	hyp []int
+	est []float64
+}
+
+// Resampling units (Stability.Unit).
+const (
+	UnitRows     = "rows"
+	UnitClusters = "clusters"
+	UnitWeighted = "frequency-weighted units"
+)
+
+// resampleUnit says what ds's bootstrap resamples, and how many of it.
+func resampleUnit(ds *data.Dataset) (string, int) {
+	switch {
+	case ds.Cluster != nil:
+		return UnitClusters, ClusterCount(ds)
+	case ds.Weights != nil && !ds.Sampling:
+		var m float64
+		for _, w := range ds.Weights {
+			m += w
+		}
+		return UnitWeighted, int(math.Round(m))
+	}
+	return UnitRows, ds.N
+}
+
+// Resample draws one bootstrap resample of ds's rows from rng: n rows
+// with replacement; whole clusters with replacement when ds has clusters
+// (each draw of a cluster a cluster of its own, named id#k for its k-th
+// draw); with frequency weights (and no clusters) the sum of the weights
+// as units, a row of weight w being w units, so that the row's new weight
+// is its multinomial count (rows drawn no time are left out). Sampling
+// weights go with their rows and are rescaled to sum to the rows drawn,
+// as the reader rescales them. The rows keep their order in ds, so a
+// resample is the same whatever the workers.
+func Resample(ds *data.Dataset, rng *rand.Rand) *data.Dataset {
+	rows, weights, cluster := resampleRows(ds, rng)
+	out := *ds
+	out.N = len(rows)
+	out.Y = make([]int, len(rows))
+	out.X = make([]float64, len(rows)*ds.K)
+	out.Lines = make([]int, len(rows))
+	if ds.Offset != nil {
+		out.Offset = make([]float64, len(rows))
+	}
+	out.Weights = weights
+	out.Cluster = cluster
+	out.Counts = make([]float64, len(ds.Categories))
+	for i, r := range rows {
+		out.Y[i] = ds.Y[r]
+		copy(out.X[i*ds.K:(i+1)*ds.K], ds.X[r*ds.K:(r+1)*ds.K])
+		out.Lines[i] = ds.Lines[r]
+		if ds.Offset != nil {
+			out.Offset[i] = ds.Offset[r]
+		}
+		w := 1.0
+		if weights != nil {
+			w = weights[i]
+		}
+		out.Counts[ds.Y[r]] += w
+	}
+	return &out
+}
+
+// resampleRows gives the rows of ds a resample holds, in ds's order, with
+// their weights (nil without weights) and cluster ids (nil without).
+func resampleRows(ds *data.Dataset, rng *rand.Rand) (rows []int, weights []float64, cluster []string) {
+	unit, _ := resampleUnit(ds)
+	switch unit {
+	case UnitClusters:
+		var ids []string
+		members := map[string][]int{}
+		for i, c := range ds.Cluster {
+			if _, ok := members[c]; !ok {
+				ids = append(ids, c)
+			}
+			members[c] = append(members[c], i)
+		}
+		draws := make([]int, len(ids))
+		for range ids {
+			draws[rng.IntN(len(ids))]++
+		}
+		// Each cluster's copies in turn, in the order clusters first
+		// appear in ds.
+		for g, id := range ids {
+			for k := 1; k <= draws[g]; k++ {
+				name := id
+				if k > 1 {
+					name = fmt.Sprintf("%s#%d", id, k)
+				}
+				for _, i := range members[id] {
+					rows = append(rows, i)
+					cluster = append(cluster, name)
+					if ds.Weights != nil {
+						weights = append(weights, ds.Weights[i])
+					}
+				}
+			}
+		}
+	case UnitWeighted:
+		cum := make([]float64, ds.N)
+		var total float64
+		for i, w := range ds.Weights {
+			total += w
+			cum[i] = total
+		}
+		m := int(math.Round(total))
+		counts := make([]int, ds.N)
+		for range m {
+			u := float64(rng.IntN(m)) + 0.5
+			counts[sort.SearchFloat64s(cum, u)]++
+		}
+		for i, c := range counts {
+			if c > 0 {
+				rows = append(rows, i)
+				weights = append(weights, float64(c))
+			}
+		}
+	default:
+		counts := make([]int, ds.N)
+		for range ds.N {
+			counts[rng.IntN(ds.N)]++
+		}
+		for i, c := range counts {
+			for range c {
+				rows = append(rows, i)
+				if ds.Weights != nil {
+					weights = append(weights, ds.Weights[i])
+				}
+			}
+		}
+	}
+	if ds.Sampling && weights != nil {
+		var sum float64
+		for _, w := range weights {
+			sum += w
+		}
+		for i := range weights {
+			weights[i] *= float64(len(weights)) / sum
+		}
+	}
+	return rows, weights, cluster
+}
+
+// resampleRNG is the stream of resample r of outcome oi: from the plan's
+// selection_stability.seed, the outcome and r alone.
+func resampleRNG(seed uint64, oi, r int) *rand.Rand {
+	return rand.New(rand.NewPCG(seed, uint64(oi)<<40^uint64(r)^0x5e1ec7))
+}
+
+// runStability repeats each outcome's decision procedure on the plan's
+// bootstrap resamples, on opt.Workers resamples at once (each with one
+// fit at a time, as a power study's replicates), and records the shares
+// in each outcome's Stability. Fits of resamples are made here, never by
+// an Executor.
+func runStability(an *Analysis, res *Result, opt Options) {
+	st := res.Plan.SelectionStability
+	if st == nil || opt.NoStability || an.Imputed != nil || an.Imputes() {
+		return
+	}
+	workers := opt.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	for _, or := range res.Outcomes {
+		or.Design.SourceScales() // taken once, before the resamples share it
+	}
+	passes := make([][]stabilityPass, st.Resamples) // [r][outcome]
+	var wg sync.WaitGroup
+	var mu sync.Mutex
+	next, done := 0, 0
+	for range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for {
+				mu.Lock()
+				r := next
+				next++
+				mu.Unlock()
+				if r >= st.Resamples {
+					return
+				}
+				passes[r] = resamplePasses(an, res, r, st.Seed)
+				mu.Lock()
+				done++
+				if opt.Resampled != nil {
+					opt.Resampled(done, st.Resamples)
+				}
+				mu.Unlock()
+			}
+		}()
+	}
+	wg.Wait()
+	for oi, or := range res.Outcomes {
+		ps := make([]stabilityPass, st.Resamples)
+		for r := range ps {
+			ps[r] = passes[r][oi]
+		}
+		or.Stability = summarizeStability(an, or, ps, st)
+	}
+}
+
+// resamplePasses runs resample r of every outcome, then corrects the
+// hypotheses' p-values for multiplicity over the outcomes as the run does.
+func resamplePasses(an *Analysis, res *Result, r int, seed uint64) []stabilityPass {
+	out := make([]stabilityPass, len(res.Outcomes))
+	sub := &Result{Plan: res.Plan, Analysis: an}
+	for oi, or := range res.Outcomes {
+		ror, err := resampleOutcome(an, an.Outcomes[oi], or, resampleRNG(seed, oi, r))
+		if err != "" {
+			out[oi].failed = err
+			ror = &OutcomeResult{Outcome: or.Outcome}
+		}
+		sub.Outcomes = append(sub.Outcomes, ror)
+	}
+	adjustHypotheses(an, sub)
+	alpha := 1 - an.Level
+	for oi, ror := range sub.Outcomes {
+		if out[oi].failed != "" {
+			continue
+		}
+		p := stabilityPass{rejected: map[[2]string]bool{}}
+		if ror.Chosen != nil {
+			p.chosen, p.fallback = ror.Chosen.ID, ror.Fallback
+		}
+		for ri, ro := range ror.Rules {
+			for _, v := range ro.Verdicts {
+				if !v.Kept {
+					p.rejected[[2]string{fmt.Sprint(ri), v.Model}] = true
+				}
+			}
+		}
+		for _, h := range an.Inference.Hypotheses {
+			state, est := -1, math.NaN()
+			for _, hr := range ror.Hypotheses {
+				if hr.Line != h.Line || hr.Text != h.Text || p.chosen == "" || hr.Model != p.chosen || !hr.Test.OK {
+					continue
+				}
+				pv := hr.Test.P
+				if hr.Adjusted != nil {
+					pv = *hr.Adjusted
+				}
+				state = 0
+				if pv < alpha {
+					state = 1
+				}
+				if len(hr.Contrasts) == 1 {
+					est = hr.Contrasts[0].Estimate
+				}
+			}
+			p.hyp = append(p.hyp, state)
+			p.est = append(p.est, est)
+		}
+		out[oi] = p
+	}
+	return out
+}
+
+// resampleOutcome draws one resample of the primary analysis's rows and
+// runs the decision procedure and the hypotheses on it, with the primary
+// analysis's design (its constants frozen there). A non-empty reason says
+// the procedure failed entirely (an internal error included).
+func resampleOutcome(an *Analysis, rd Reading, primary *OutcomeResult, rng *rand.Rand) (or *OutcomeResult, failed string) {
+	defer func() {
+		if e := recover(); e != nil {
+			or, failed = nil, fmt.Sprintf("internal error: %v (please report it with the command line that caused it)", e)
+		}
+	}()
+	ds := Resample(primary.Data, rng)
+	fd, err := frozenData(primary.Design, ds)
+	if err != nil {
+		return nil, err.Error()
+	}
+	or = &OutcomeResult{Outcome: primary.Outcome, Data: ds, FitData: fd, Design: primary.Design, Terms: primary.Terms, dataOptions: primary.dataOptions}
+	if err := an.CheckDesign(rd, primary.Design, fd); err != nil {
+		return nil, err.Error()
+	}
+	if err := decideOutcome(an, rd, or, Options{Workers: 1}, nil); err != nil {
+		return nil, err.Error()
+	}
+	testHypotheses(an, or)
+	return or, ""
+}
+
+// summarizeStability turns the passes of one outcome into its shares.
+func summarizeStability(an *Analysis, or *OutcomeResult, ps []stabilityPass, st *plan.SelectionStability) *Stability {
+	R := len(ps)
+	unit, units := resampleUnit(or.Data)
+	s := &Stability{Resamples: R, Seed: st.Seed, Unit: unit, Units: units, Alpha: 1 - an.Level, Level: an.Level}
+	if or.Chosen != nil {
+		s.Primary = or.Chosen.ID
+	}
+	var models []string
+	for _, f := range or.Fits {
+		if !f.Auxiliary {
+			models = append(models, f.ID)
+		}
+	}
+	chosen, fallback := map[string]int{}, map[string]int{}
+	none, failed := 0, 0
+	for _, p := range ps {
+		switch {
+		case p.failed != "":
+			failed++
+			if !slices.Contains(s.Failures, p.failed) && len(s.Failures) < 5 {
+				s.Failures = append(s.Failures, p.failed)
+			}
+		case p.chosen == "":
+			none++
+		default:
+			chosen[p.chosen]++
+			if p.fallback {
+				fallback[p.chosen]++
+			}
+			if !slices.Contains(models, p.chosen) {
+				models = append(models, p.chosen) // a fallback outside the grid
+			}
+		}
+	}
+	for _, m := range models {
+		s.Models = append(s.Models, StabilityModel{Model: m, Chosen: RateOf(chosen[m], R), Primary: m == s.Primary, Fallback: fallback[m]})
+	}
+	s.None, s.Failed = RateOf(none, R), RateOf(failed, R)
+	for ri, ro := range or.Rules {
+		sr := StabilityRule{Number: ri + 1, Kind: ro.Rule.Kind, Description: ro.Description}
+		for _, m := range models {
+			n := 0
+			for _, p := range ps {
+				if p.rejected[[2]string{fmt.Sprint(ri), m}] {
+					n++
+				}
+			}
+			sr.Rejected = append(sr.Rejected, ModelShare{Model: m, Share: RateOf(n, R)})
+		}
+		s.Rules = append(s.Rules, sr)
+	}
+	for hi, h := range an.Inference.Hypotheses {
+		sh := StabilityHypothesis{Hypothesis: h.Text, Line: h.Line}
+		rejected := 0
+		var est []float64
+		for _, p := range ps {
+			if p.failed != "" || hi >= len(p.hyp) || p.hyp[hi] < 0 {
+				continue
+			}
+			sh.Tested++
+			if p.hyp[hi] == 1 {
+				rejected++
+			}
+			if !math.IsNaN(p.est[hi]) {
+				est = append(est, p.est[hi])
+			}
+		}
+		sh.Rejected = RateOf(rejected, R)
+		if len(est) > 0 {
+			sh.Estimated = len(est)
+			sort.Float64s(est)
+			lo := stat.Quantile((1-an.Level)/2, stat.Empirical, est, nil)
+			hi := stat.Quantile(1-(1-an.Level)/2, stat.Empirical, est, nil)
+			sh.Low, sh.High = &lo, &hi
+		}
+		s.Hypotheses = append(s.Hypotheses, sh)
+	}
+	return s
+}

@@ -1,0 +1,271 @@
+package runner
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"ordplan/plan"
+	"ordplan/runner/data"
+)
+
+// stageData writes the invented data of the stability tests: n rows of a
+// numeric x ~ N(0, 1) and a 3-category outcome drawn by stages, forward:
+// P(y = 1) = expit(-0.3 - 1.5 x), then among the others P(y = 2) =
+// expit(0.3 + 1.5 x), so that x's effect has opposite signs at the two
+// stages and the stage model with nonparallel effects is the model that
+// made the data (seed 20261205). With clusters, rows come in runs of 10
+// consecutive rows sharing a cluster id (no cluster effect).
+func stageData(t *testing.T, dir string, n int, clusters bool) {
+	t.Helper()
+	rng := rand.New(rand.NewPCG(20261205, 1))
+	expit := func(z float64) float64 { return 1 / (1 + math.Exp(-z)) }
+	var b strings.Builder
+	b.WriteString("y,x,site\n")
+	for i := range n {
+		x := rng.NormFloat64()
+		y := 3
+		switch {
+		case rng.Float64() < expit(-0.3-1.5*x):
+			y = 1
+		case rng.Float64() < expit(0.3+1.5*x):
+			y = 2
+		}
+		fmt.Fprintf(&b, "%d,%.6f,s%d\n", y, x, i/10)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+}
+
+func stagePlan(t *testing.T, dir, extra string) *plan.Plan {
+	t.Helper()
+	src := "version: 1\ndata: {file: d.csv" + extra + "}\noutcomes: [{column: y}]\npredictors: [x]\n" +
+		"models: {approaches: [stage], effects: [parallel, nonparallel]}\ntests: {parallel_lines: [lr]}\n" +
+		"rules:\n  - reject_unconverged: true\n  - reject_if_test_rejects: {test: lr, alpha: 0.05}\n  - prefer_simpler: {by: bic, margin: 2}\n" +
+		"inference:\n  hypotheses: [\"x[1] = x[2]\"]\n  term_tests: none\n" +
+		"selection_stability: {resamples: 20, seed: 11}\n"
+	if strings.Contains(extra, "cluster") {
+		src += "covariance: clustered\n"
+	}
+	path := filepath.Join(dir, "p.yaml")
+	if err := os.WriteFile(path, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	p, err := plan.Load(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+// TestStabilityOfAClearChoice: on data made by the stage model with
+// nonparallel effects (opposite signs at the two stages, 400 rows), the
+// likelihood-ratio test rejects the parallel model in every resample, so
+// the procedure chooses the nonparallel model in (nearly) every one, and
+// the hypothesis x[1] = x[2] (equal effects at both stages) is rejected in
+// it with a percentile interval of its estimate around the data's own
+// (-3 in the generating model: -1.5 - 1.5; the sign of a stage model's
+// slopes follows the program's convention, so only the size is checked).
+func TestStabilityOfAClearChoice(t *testing.T) {
+	dir := t.TempDir()
+	stageData(t, dir, 400, false)
+	res, err := Run(stagePlan(t, dir, ""), Options{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	or := res.Outcomes[0]
+	st := or.Stability
+	if st == nil {
+		t.Fatal("no stability study")
+	}
+	if or.Chosen == nil || or.Chosen.ID != "stage/nonparallel/logit" || st.Primary != or.Chosen.ID {
+		t.Fatalf("primary choice %v, stability's %q", or.Chosen, st.Primary)
+	}
+	if st.Unit != UnitRows || st.Units != 400 || st.Resamples != 20 {
+		t.Errorf("unit %q units %d resamples %d", st.Unit, st.Units, st.Resamples)
+	}
+	var share float64
+	total := st.None.Count + st.Failed.Count
+	for _, m := range st.Models {
+		total += m.Chosen.Count
+		if m.Model == "stage/nonparallel/logit" {
+			share = m.Chosen.Rate
+			if !m.Primary {
+				t.Error("the primary choice is not marked")
+			}
+		}
+	}
+	if total != 20 {
+		t.Errorf("the shares count %d resamples, want 20", total)
+	}
+	t.Logf("share %.3f, hypothesis %+v", share, st.Hypotheses[0])
+	if share < 0.95 {
+		t.Errorf("share choosing the generating model %.3f, want near 1", share)
+	}
+	if r := st.Rules[1]; r.Kind != "reject_if_test_rejects" || r.Rejected[0].Model != "stage/parallel/logit" || r.Rejected[0].Share.Rate < 0.95 {
+		t.Errorf("rule 2's rejections: %+v", r)
+	}
+	h := st.Hypotheses[0]
+	if h.Tested < 19 || h.Rejected.Rate < 0.95 || h.Low == nil || h.Estimated != h.Tested {
+		t.Fatalf("hypothesis: %+v", h)
+	}
+	est := or.Hypotheses[0].Contrasts[0].Estimate
+	if !(*h.Low < est && est < *h.High) || math.Abs(est) < 2 || math.Abs(est) > 4 {
+		t.Errorf("estimate %.3f, percentile interval %.3f to %.3f", est, *h.Low, *h.High)
+	}
+}
+
+// TestStabilityDeterministic: the same seed gives the same shares, byte
+// for byte, whatever the workers, with rows and with whole clusters.
+func TestStabilityDeterministic(t *testing.T) {
+	for _, extra := range []string{"", ", cluster: site"} {
+		dir := t.TempDir()
+		stageData(t, dir, 300, true)
+		p := stagePlan(t, dir, extra)
+		var first []byte
+		for _, w := range []int{1, 3} {
+			res, err := Run(p, Options{Workers: w})
+			if err != nil {
+				t.Fatal(err)
+			}
+			b, err := json.Marshal(res.Outcomes[0].Stability)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if first == nil {
+				first = b
+				continue
+			}
+			if !bytes.Equal(first, b) {
+				t.Errorf("%q: workers 1 and 3 differ:\n%s\n%s", extra, first, b)
+			}
+		}
+		if extra != "" && !bytes.Contains(first, []byte(`"unit":"clusters","units":30`)) {
+			t.Errorf("clusters not resampled: %s", first)
+		}
+	}
+}
+
+// TestResampleDraws checks what a resample holds: n rows with
+// replacement, each row drawn once on average; whole clusters, as many
+// draws as clusters, each cluster drawn once on average, every copy
+// holding all its rows; frequency weights as units, the resample's
+// weights multinomial counts that sum to the units (a row of weight 0
+// never drawn) with mean count the row's weight; sampling weights kept
+// with their rows and rescaled to sum to the rows drawn.
+func TestResampleDraws(t *testing.T) {
+	const draws = 4000
+	rng := rand.New(rand.NewPCG(1, 2))
+	base := func(n int) *data.Dataset {
+		ds := &data.Dataset{N: n, K: 1, Categories: []string{"1", "2"}}
+		for i := range n {
+			ds.Y = append(ds.Y, i%2)
+			ds.X = append(ds.X, float64(i))
+			ds.Lines = append(ds.Lines, i+2)
+		}
+		return ds
+	}
+	near := func(what string, got, want, tol float64) {
+		t.Helper()
+		if math.Abs(got-want) > tol {
+			t.Errorf("%s: %.4f, want %.4f within %.4f", what, got, want, tol)
+		}
+	}
+
+	// Rows.
+	ds := base(5)
+	counts := make([]float64, 5)
+	for range draws {
+		r := Resample(ds, rng)
+		if r.N != 5 || r.Weights != nil || len(r.X) != 5 {
+			t.Fatalf("a resample of rows: %+v", r)
+		}
+		for i, x := range r.X {
+			counts[int(x)]++
+			if r.Y[i] != int(x)%2 || r.Lines[i] != int(x)+2 {
+				t.Fatal("a row's values were separated")
+			}
+		}
+	}
+	for i, c := range counts {
+		// Each row's count is Binomial(5, 1/5): mean 1, sd 0.89 per draw.
+		near(fmt.Sprintf("row %d's mean count", i), c/draws, 1, 5*0.894/math.Sqrt(draws))
+	}
+
+	// Whole clusters: a (rows 0, 1), b (row 2), c (rows 3, 4, 5).
+	ds = base(6)
+	ds.Cluster = []string{"a", "a", "b", "c", "c", "c"}
+	size := map[string]int{"a": 2, "b": 1, "c": 3}
+	drawn := map[string]float64{}
+	for range draws {
+		r := Resample(ds, rng)
+		copies := map[string]int{}
+		for i, id := range r.Cluster {
+			copies[id]++
+			orig := ds.Cluster[int(r.X[i])]
+			if id != orig && !strings.HasPrefix(id, orig+"#") {
+				t.Fatalf("row %v of cluster %s in copy %s", r.X[i], orig, id)
+			}
+		}
+		if len(copies) != 3 {
+			t.Fatalf("%d clusters drawn, want 3: %v", len(copies), r.Cluster)
+		}
+		for id, n := range copies {
+			orig, _, _ := strings.Cut(id, "#")
+			if n != size[orig] {
+				t.Fatalf("copy %s holds %d rows, cluster %s has %d", id, n, orig, size[orig])
+			}
+			drawn[orig]++
+		}
+	}
+	for id := range size {
+		// Binomial(3, 1/3): mean 1, sd 0.82.
+		near("cluster "+id+"'s mean draws", drawn[id]/draws, 1, 5*0.817/math.Sqrt(draws))
+	}
+
+	// Frequency weights: 1, 2, 3 and 0, six units.
+	ds = base(4)
+	ds.Weights = []float64{1, 2, 3, 0}
+	sum := make([]float64, 4)
+	for range draws {
+		r := Resample(ds, rng)
+		total := 0.0
+		for i, w := range r.Weights {
+			if w < 1 || w != math.Trunc(w) {
+				t.Fatalf("weight %v", w)
+			}
+			total += w
+			sum[int(r.X[i])] += w
+		}
+		if total != 6 {
+			t.Fatalf("the counts sum to %v, want 6", total)
+		}
+	}
+	for i, w := range ds.Weights {
+		// Multinomial(6, w/6): mean w, variance w (1 - w/6).
+		near(fmt.Sprintf("row %d's mean count", i), sum[i]/draws, w, 5*math.Sqrt(w*(1-w/6))/math.Sqrt(draws)+1e-12)
+	}
+
+	// Sampling weights: kept with their rows, rescaled.
+	ds = base(4)
+	ds.Weights, ds.Sampling = []float64{0.5, 1, 1.5, 1}, true
+	for range 50 {
+		r := Resample(ds, rng)
+		total := 0.0
+		for _, w := range r.Weights {
+			total += w
+		}
+		near("sampling weights' sum", total, float64(r.N), 1e-9)
+		for i := range r.Weights {
+			ratio := r.Weights[i] / ds.Weights[int(r.X[i])]
+			near("rescaling", ratio, r.Weights[0]/ds.Weights[int(r.X[0])], 1e-12)
+		}
+	}
+}
