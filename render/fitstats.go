@@ -9,6 +9,7 @@ import (
 	"github.com/go-echarts/go-echarts/v2/charts"
 	"github.com/go-echarts/go-echarts/v2/opts"
 
+	"ordplan/internal/words"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/fit"
@@ -139,6 +140,21 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		head = append(head, "df")
 	}
 	d.captioned(capitalize(kind)+"s of the chosen model").table(head, rows)
+	if u := unshownOdds(tab.Rows); u != "" {
+		d.p("%s", u)
+	}
+}
+
+// unshownOdds says, of the predictors whose odds ratios or their bounds lie
+// beyond what a number holds (runner.UnshownOdds), why they read inf
+// or 0 and what to do; "" when there are none. The report and ordplan fit
+// say it alike.
+func unshownOdds(rows []runner.OddsRatioRow) string {
+	u := runner.UnshownOdds(rows)
+	if len(u) == 0 {
+		return ""
+	}
+	return fmt.Sprintf("The odds ratios of %s read inf or 0: exp(b) per unit of the column lies beyond what a number holds, its unit being far larger than its values vary (b itself is in the estimates); rescale the column, multiplying it by a power of 10, for odds ratios per a unit its values span.", words.AndList(u))
 }
 
 // cautionText is the sentence that follows a computed test whose pooling

@@ -243,6 +243,11 @@ func oddsRatioText(w io.Writer, r *fit.Result, tab *runner.OddsRatiosRecord) err
 	if err := tw.Flush(); err != nil {
 		return err
 	}
+	if u := unshownOdds(tab.Rows); u != "" {
+		if _, err := fmt.Fprintln(w, u); err != nil {
+			return err
+		}
+	}
 	if len(tab.Omitted) > 0 {
 		_, err := fmt.Fprintf(w, "No odds ratio for the columns of %s: a column of a polynomial or spline basis (or a product with one), or of a term whose data column also makes another term, has no unit change of its own; their estimates are in the table above.\n", strings.Join(tab.Omitted, ", "))
 		return err

@@ -1,6 +1,7 @@
 package runner
 
 import (
+	"math"
 	"slices"
 
 	"ordplan/runner/fit"
@@ -93,6 +94,22 @@ func plainReadings(columns []string, binary []bool) []ColumnReading {
 		out[i] = ColumnReading{Column: c, Term: c, Change: "per unit of " + c, Alone: true}
 		if binary[i] {
 			out[i].Change, out[i].named = "1 against 0", true
+		}
+	}
+	return out
+}
+
+// UnshownOdds names, in table order, the predictors an odds ratio or a bound
+// of whose interval lies beyond what a number holds (exp(b) infinite, or 0
+// for b far below 0) though b is finite: a column whose unit is far larger
+// than its values vary (values about 1e-12, b about 1e11). The tables show
+// such a ratio as inf or 0, and the report and ordplan fit say why.
+func UnshownOdds(rows []OddsRatioRow) []string {
+	var out []string
+	for _, o := range rows {
+		bad := func(x float64) bool { return math.IsInf(x, 0) || x == 0 }
+		if !math.IsInf(o.Log, 0) && !math.IsNaN(o.Log) && (bad(o.Ratio) || bad(o.Low) || bad(o.High)) && !slices.Contains(out, o.Predictor) {
+			out = append(out, o.Predictor)
 		}
 	}
 	return out

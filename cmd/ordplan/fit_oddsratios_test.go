@@ -135,3 +135,60 @@ rules:
 		t.Errorf("header:\n%s", text)
 	}
 }
+
+// An odds ratio per unit of a column measured in units of 1e-12 (slope
+// about 1e12) is beyond what a number holds: ordplan fit and the report
+// say why it reads inf or 0 and how to rescale, and --json gives null; a
+// column in ordinary units gets no such note.
+func TestFitOddsRatiosBeyondNumbers(t *testing.T) {
+	dir := t.TempDir()
+	var b strings.Builder
+	b.WriteString("y,x,tiny\n")
+	for i := range 120 {
+		x := float64(i%11)/5 - 1
+		tiny := float64((i*7)%13-6) * 1e-12
+		y := 1 + (i%3+int(math.Round(x+tiny*1e12/3))+3)%3
+		fmt.Fprintf(&b, "%d,%g,%g\n", y, x, tiny)
+	}
+	data := filepath.Join(dir, "tiny.csv")
+	if err := os.WriteFile(data, []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out, errs, code := runCLI("fit", "--data", data, "--outcome", "y", "--predictors", "x,tiny")
+	if code != 0 {
+		t.Fatalf("exit %d\n%s%s", code, out, errs)
+	}
+	want := "The odds ratios of tiny read inf or 0: exp(b) per unit of the column lies beyond what a number holds"
+	if !strings.Contains(out, want) || strings.Contains(out, "odds ratios of x") {
+		t.Errorf("want %q (tiny alone) in\n%s", want, out)
+	}
+	// --json gives the ratio as the number it is (0, or null for an
+	// infinite one), with its log.
+	jout, _, _ := runCLI("fit", "--data", data, "--outcome", "y", "--predictors", "x,tiny", "--json")
+	var j struct {
+		Checks struct {
+			OddsRatios struct {
+				Rows []struct {
+					Predictor string   `json:"predictor"`
+					Log       float64  `json:"log_estimate"`
+					Ratio     *float64 `json:"ratio"`
+				} `json:"rows"`
+			} `json:"odds_ratios"`
+		} `json:"checks"`
+	}
+	if err := json.Unmarshal([]byte(jout), &j); err != nil {
+		t.Fatal(err)
+	}
+	found := false
+	for _, r := range j.Checks.OddsRatios.Rows {
+		if r.Predictor == "tiny" {
+			found = true
+			if math.Abs(r.Log) < 1e9 || r.Ratio != nil && *r.Ratio != 0 && !math.IsInf(*r.Ratio, 0) {
+				t.Errorf("--json: tiny log %g ratio %v", r.Log, r.Ratio)
+			}
+		}
+	}
+	if !found {
+		t.Errorf("--json: no odds ratio of tiny in\n%s", jout)
+	}
+}
