@@ -108,7 +108,7 @@ func writeStability(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			iv := "(several restrictions in every chosen model that tested it)"
 			switch {
 			case h.Low != nil && h.Estimated < h.Tested:
-				iv = fmt.Sprintf("%s to %s (over the %d resamples where it is a single restriction)", numfmt.Est(*h.Low), numfmt.Est(*h.High), h.Estimated)
+				iv = fmt.Sprintf("%s to %s (over the %d resample%s where it is a single restriction)", numfmt.Est(*h.Low), numfmt.Est(*h.High), h.Estimated, plural(h.Estimated))
 			case h.Low != nil:
 				iv = numfmt.Est(*h.Low) + " to " + numfmt.Est(*h.High)
 			case h.Tested == 0:

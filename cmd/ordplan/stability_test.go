@@ -1,0 +1,105 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// TestSelectionStabilityOutputs: a plan with selection_stability run as a
+// user runs it writes the section after the decision log, the CSV table
+// (listed among the files), decisions.json's block and the Methods
+// sentence; with --workers 1 and 2 every output is the same bytes. The
+// data are invented (seeded formula, clusters of 8 rows, frequency
+// weights 1 to 3).
+func TestSelectionStabilityOutputs(t *testing.T) {
+	dir := t.TempDir()
+	var b strings.Builder
+	b.WriteString("x,y,site,w\n")
+	for i := range 160 {
+		fmt.Fprintf(&b, "%d,%d,s%d,%d\n", i%13, 1+(i*7+i%13)%3, i/8, 1+i%3)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, extra := range []string{"", ", cluster: site", ", weights: w"} {
+		covariance := ""
+		if strings.Contains(extra, "cluster") {
+			covariance = "covariance: clustered\n"
+		}
+		src := "version: 1\ndata: {file: d.csv" + extra + "}\noutcomes: [{column: y}]\npredictors: [x]\n" +
+			"models: {approaches: [cumulative, adjacent], effects: [parallel, nonparallel]}\ntests: {parallel_lines: [lr]}\n" +
+			"rules:\n  - reject_unconverged: true\n  - reject_if_test_rejects: {test: lr, alpha: 0.05}\n  - choose: {by: aic}\n" +
+			covariance + "inference: {hypotheses: [\"x = 0\"]}\nselection_stability: {resamples: 20, seed: 9}\n"
+		if err := os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		outs := []string{filepath.Join(dir, "w1"), filepath.Join(dir, "w2")}
+		for i, out := range outs {
+			os.RemoveAll(out)
+			if o, errs, code := runCLI("run", filepath.Join(dir, "p.yaml"), "--out", out, "--quiet", fmt.Sprintf("--workers=%d", i+1)); code != 0 {
+				t.Fatalf("%q: exit %d: %s %s", extra, code, o, errs)
+			}
+		}
+		entries, err := os.ReadDir(outs[0])
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, e := range entries {
+			if e.IsDir() {
+				continue
+			}
+			one, _ := os.ReadFile(filepath.Join(outs[0], e.Name()))
+			two, err := os.ReadFile(filepath.Join(outs[1], e.Name()))
+			if err != nil || !bytes.Equal(one, two) {
+				t.Errorf("%q: %s differs between --workers 1 and 2 (%v)", extra, e.Name(), err)
+			}
+		}
+		rep, _ := os.ReadFile(filepath.Join(outs[0], "report.md"))
+		r := string(rep)
+		log, sec := strings.Index(r, "### Decision log"), strings.Index(r, "### Stability of the model choice")
+		if log < 0 || sec < log {
+			t.Fatalf("%q: the stability section is missing or before the decision log", extra)
+		}
+		unit := map[string]string{"": "160 rows", ", cluster: site": "20 clusters of `site`", ", weights: w": "319 units, the frequency weights of `w`"}[extra]
+		for _, want := range []string{unit, "Plain reading: the primary analysis chose", "| table-stability-y.csv |",
+			"The stability of the model choice was assessed", "Assumptions and limits of this study"} {
+			if !strings.Contains(r, want) {
+				t.Errorf("%q: report.md lacks %q", extra, want)
+			}
+		}
+		csv, err := os.ReadFile(filepath.Join(outs[0], "table-stability-y.csv"))
+		if err != nil || !strings.HasPrefix(string(csv), "what,rule,rule_kind,model,hypothesis,count,of,share,mc_se,primary_choice,estimate_low,estimate_high\n") {
+			t.Errorf("%q: table-stability-y.csv: %v\n%s", extra, err, csv)
+		}
+		var dec struct {
+			Outcomes []struct {
+				Stability *struct {
+					Resamples int    `json:"resamples"`
+					Unit      string `json:"unit"`
+					Models    []struct {
+						Chosen struct{ Count int } `json:"chosen"`
+					} `json:"models"`
+					None   struct{ Count int } `json:"none_chosen"`
+					Failed struct{ Count int } `json:"failed"`
+				} `json:"selection_stability"`
+			} `json:"outcomes"`
+		}
+		js, _ := os.ReadFile(filepath.Join(outs[0], "decisions.json"))
+		if err := json.Unmarshal(js, &dec); err != nil || dec.Outcomes[0].Stability == nil {
+			t.Fatalf("%q: decisions.json: %v", extra, err)
+		}
+		st := dec.Outcomes[0].Stability
+		total := st.None.Count + st.Failed.Count
+		for _, m := range st.Models {
+			total += m.Chosen.Count
+		}
+		if st.Resamples != 20 || total != 20 {
+			t.Errorf("%q: %d resamples, shares over %d", extra, st.Resamples, total)
+		}
+	}
+}
