@@ -69,7 +69,7 @@ func writeStability(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	d.captioned("Model chosen in the bootstrap resamples (share with its Monte Carlo standard error)").table([]string{"Model", "Resamples", "Share (MC se)", "Note"}, rows)
 	d.p("%s", stabilityReading(or, st, primary, top))
 	if len(st.Failures) > 0 {
-		d.p("In %d of %d resamples the procedure failed as a whole (no grid could be fitted), counted apart from those where the rules chose nothing; the reasons met first: %s.", st.Failed.Count, st.Resamples, mdText(strings.Join(st.Failures, "; ")))
+		d.p("In %d of %d resamples the procedure failed as a whole (the resample's data could not be fitted at all), counted apart from those where the rules chose nothing; the reasons met first: %s.", st.Failed.Count, st.Resamples, mdText(strings.Join(st.Failures, "; ")))
 	}
 
 	// Which rule rejected which model.
@@ -165,6 +165,9 @@ func stabilityReading(or *runner.OutcomeResult, st *runner.Stability, primary *r
 		s += " The choice is repeated more often than not, but far from always: read the effects of the chosen model with the models chosen instead in mind."
 	default:
 		s += " The choice is stable on data like these."
+	}
+	if st.Failed.Count > 0 {
+		s += fmt.Sprintf(" The share counts the %d resamples where the procedure failed as not repeating the choice.", st.Failed.Count)
 	}
 	if top.Model != primary.Model && top.Chosen.Count > c.Count {
 		s += fmt.Sprintf(" The model chosen most often was %s (%d of %d).", top.Model, top.Chosen.Count, st.Resamples)

@@ -269,3 +269,57 @@ func TestResampleDraws(t *testing.T) {
 		}
 	}
 }
+
+// TestStabilityCountsFailedResamples: a level of a categorical predictor
+// held by one row of 120 is missing from about a third of the resamples
+// ((1 - 1/120)^120), whose design then cannot be fitted: those resamples
+// count as failed, with the reason, and every resample is counted once.
+// Invented data: x ~ N(0, 1), g a or b at random but "rare" in row 6, y
+// from two thresholds of x plus noise (seed 3).
+func TestStabilityCountsFailedResamples(t *testing.T) {
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(3, 3))
+	var b strings.Builder
+	b.WriteString("y,x,g\n")
+	for i := range 120 {
+		g := []string{"a", "b"}[rng.IntN(2)]
+		if i == 5 {
+			g = "rare"
+		}
+		x := rng.NormFloat64()
+		y := 1
+		if x+rng.NormFloat64() > -0.5 {
+			y++
+		}
+		if x+rng.NormFloat64() > 0.7 {
+			y++
+		}
+		fmt.Fprintf(&b, "%d,%.4f,%s\n", y, x, g)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	src := "version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\ncategorical:\n  g: {levels: [a, b, rare]}\npredictors: [x, g]\n" +
+		"models: {approaches: [cumulative], effects: [parallel, nonparallel]}\ntests: {parallel_lines: [lr]}\n" +
+		"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\nselection_stability: {resamples: 30, seed: 1}\n"
+	path := filepath.Join(dir, "p.yaml")
+	if err := os.WriteFile(path, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	p, err := plan.Load(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Run(p, Options{Workers: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	st := res.Outcomes[0].Stability
+	total := st.None.Count + st.Failed.Count
+	for _, m := range st.Models {
+		total += m.Chosen.Count
+	}
+	if total != 30 || st.Failed.Count == 0 || st.Failed.Count > 20 || len(st.Failures) == 0 || !strings.Contains(st.Failures[0], "g.rare") {
+		t.Errorf("%d resamples counted, %d failed: %q", total, st.Failed.Count, st.Failures)
+	}
+}
