@@ -40,6 +40,9 @@ func CheckData(p *plan.Plan) ([]string, error) {
 		if w := a.FewClusters(r, used); w != "" {
 			warnings = append(warnings, fmt.Sprintf("outcome %s: %s", r.Outcome, w))
 		}
+		if w := a.SparseWithinUnmet(&OutcomeResult{Design: ld.Design, dataOptions: r.Options}, used); w != "" {
+			warnings = append(warnings, fmt.Sprintf("outcome %s: %s", r.Outcome, w))
+		}
 		terms := termsOf(ld.Design)
 		if w := a.SingularModels(r, used, gridModels(a, terms), len(ld.Data.Categories), allColumns(terms)); w != "" {
 			warnings = append(warnings, fmt.Sprintf("outcome %s: %s", r.Outcome, w))
@@ -125,6 +128,9 @@ func FewClustersWarnings(res *Result) []string {
 		}
 		out = append(out, pointWarnings(an.Outcomes[i].Outcome, or.AsRead())...)
 		if w := an.FewClusters(an.Outcomes[i], or.Data); w != "" {
+			out = append(out, fmt.Sprintf("outcome %s: %s", an.Outcomes[i].Outcome, w))
+		}
+		if w := an.SparseWithinUnmet(or, or.Data); w != "" {
 			out = append(out, fmt.Sprintf("outcome %s: %s", an.Outcomes[i].Outcome, w))
 		}
 		if w := an.SingularModels(an.Outcomes[i], or.Data, or.Fits, len(or.Data.Categories), allColumns(or.Terms)); w != "" {

@@ -1266,3 +1266,38 @@ func (env *ruleEnv) taken() map[string]float64 {
 	}
 	return m
 }
+
+// SparseWithinUnmet warns, for each reject_if_sparse rule counting the
+// categories within the values of a column, when no data of this size
+// could meet it: the column takes K values among the rows used (ds; or's
+// Design and dataOptions read the column as the rule does), the outcome J
+// categories, and K x J x smallest_category is more than the observations,
+// so some category falls below the limit within some value whatever the
+// data, and the rule rejects every model in which that column's effect
+// varies across equations (a numeric column of many values, say, where a
+// categorical or 0/1 one was meant). "" when no rule is so.
+func (a *Analysis) SparseWithinUnmet(or *OutcomeResult, ds *data.Dataset) string {
+	var out []string
+	for _, r := range a.Rules {
+		if r.Kind != plan.RuleRejectIfSparse || r.Within == "" || r.SmallestCategory <= 0 {
+			continue
+		}
+		probe := *or
+		probe.Data = ds
+		labels, err := columnLabels(&probe, r.Within)
+		if err != nil {
+			continue // the rule says so in its verdicts
+		}
+		values := map[string]bool{}
+		for _, l := range labels {
+			values[l] = true
+		}
+		nobs := fit.Observations(ds.N, ds.NObs(), a.Errors.Sampling)
+		K, J := len(values), len(ds.Categories)
+		if need := float64(K*J) * r.SmallestCategory; need > nobs {
+			out = append(out, fmt.Sprintf("the rule at line %d (reject_if_sparse) counts each category within the values of %s, which takes %d values among the rows used: %d values x %d categories x %s is %s, more than the %s observations, so some category has fewer than %s within some value whatever the data, and the rule rejects every model in which the effect of %s varies across equations; within is meant for a categorical or few-valued column",
+				r.Line, r.Within, K, K, J, numfmt.Num(r.SmallestCategory), numfmt.Num(need), numfmt.Num(nobs), numfmt.Num(r.SmallestCategory), r.Within))
+		}
+	}
+	return strings.Join(out, "; ")
+}

@@ -397,6 +397,22 @@ func mistakeItems(dir string) []badInput {
 					t.Errorf("fit --categories 1,2,3,4: exit %d, want %q in\n%s", code, want, e)
 				}
 			}},
+		{id: "W32", name: "reject_if_sparse counting categories within the values of a numeric column of many values", args: []string{"check"}, code: 0,
+			plan: edit("  - reject_unconverged: true\n", "  - reject_unconverged: true\n  - reject_if_sparse: {smallest_category: 5, within: a}\n"),
+			check: func(t *testing.T, dir, out, errs string) {
+				want := "warning: " + filepath.Join(dir, "W32.yaml") + ": outcome y: the rule at line 13 (reject_if_sparse) counts each category within the values of a, which takes "
+				if !strings.Contains(errs, want) || !strings.Contains(errs, "whatever the data, and the rule rejects every model in which the effect of a varies across equations; within is meant for a categorical or few-valued column\n") {
+					t.Errorf("check: want %q in\n%s", want, errs)
+				}
+				// Within a 0/1 column the rule can be met: no warning.
+				plan := filepath.Join(dir, "W32b.yaml")
+				if err := os.WriteFile(plan, []byte(strings.Replace(edit("  - reject_unconverged: true\n", "  - reject_unconverged: true\n  - reject_if_sparse: {smallest_category: 5, within: b}\n"), "file: d.csv", "file: "+filepath.Join(dir, "d.csv"), 1)), 0o644); err != nil {
+					t.Fatal(err)
+				}
+				if _, e, code := runCLI("check", plan); code != 0 || strings.Contains(e, "reject_if_sparse) counts") {
+					t.Errorf("within b: exit %d\n%s", code, e)
+				}
+			}},
 		{id: "P66", name: "ordplan init into a folder that does not exist", args: []string{"init", filepath.Join(dir, "P66-nodir", "x.yaml"), "--data", filepath.Join(dir, "d.csv")}, code: 1,
 			want:  []string{"ordplan: init: cannot write P66-nodir/x.yaml: the folder P66-nodir does not exist: make it first, or give another path"},
 			check: noFolder("P66-nodir")},
