@@ -7,6 +7,8 @@ import (
 	"strconv"
 	"strings"
 
+	"gonum.org/v1/gonum/blas"
+	"gonum.org/v1/gonum/blas/blas64"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -157,46 +159,88 @@ func (r *Result) VarianceAvailable(g []float64) bool {
 // combination y lies in cluster g when sum_{i in g} (y'z_i)^2 = 1. Such y
 // has y'(sum_{i in g} z_i) = y'W (total score), near 0 at the maximum, in
 // every cluster, so it lies in the null space of the whitened meat
-// sum_g zbar_g zbar_g': found first (one eigendecomposition); only when
-// that space is not empty are the clusters' rows read again, each
-// cluster's rows projected on it, and the right singular vectors of
-// singular value 1 kept.
+// sum_g zbar_g zbar_g': found first (one eigendecomposition); when that
+// space is not empty, each row projected on it (t_i = Q w_i s_i), the
+// eigenvectors of eigenvalue 1 of each cluster's sum of t_i t_i' are kept.
+// Those sums are Q M_g Q', M_g the cluster's own part of M, added up in the
+// same pass as M when the clusters' M_g fit in gramBudget; else the rows
+// are read again (projectedGrams). The rows' outer products are added in
+// blocks (rowGram), so that the pass costs little beside the sandwich's.
 func oneClusterCombinations(pr *problem, theta []float64, clusters []string, w func(int) float64) ([][]float64, []string, []float64, error) {
 	P := len(theta)
-	M := make([]float64, P*P)
-	sums := map[string][]float64{}
-	rows := map[string][]int{}
+	// The clusters by number, in sorted order.
+	num := map[string]int{}
+	for _, c := range clusters {
+		num[c] = 0
+	}
+	keys := make([]string, 0, len(num))
+	for k := range num {
+		keys = append(keys, k)
+	}
+	sort.Strings(keys)
+	for g, k := range keys {
+		num[k] = g
+	}
+	idx := make([]int32, len(clusters))
+	for i, c := range clusters {
+		idx[i] = int32(num[c])
+	}
+	G := len(keys)
+	sums := make([][]float64, G)
+	for g := range sums {
+		sums[g] = make([]float64, P)
+	}
+	// Each cluster's own cross-products M_g when they fit in gramBudget
+	// values (then M is their sum and no second pass is needed), else M
+	// alone.
+	perCluster := G*P*P <= gramBudget
+	groups := 1
+	if perCluster {
+		groups = G
+	}
+	Mg := newRowGram(groups, P, max(1, min(256, gramBudget/max(1, groups*P))))
 	err := pr.rowScores(theta, func(i int, s []float64) {
 		wi := w(i)
 		if wi <= 0 {
 			return
 		}
-		cs, ok := sums[clusters[i]]
-		if !ok {
-			cs = make([]float64, P)
-			sums[clusters[i]] = cs
+		g := int(idx[i])
+		cs := sums[g]
+		if !perCluster {
+			g = 0
 		}
+		ws := Mg.row(g)
 		for j := range s {
-			cs[j] += wi * s[j]
+			ws[j] = wi * s[j]
+			cs[j] += ws[j]
 		}
-		addOuter(M, s, wi*wi)
-		rows[clusters[i]] = append(rows[clusters[i]], i)
+		Mg.add(g)
 	})
 	if err != nil {
 		return nil, nil, nil, err
+	}
+	grams := Mg.sums()
+	Mm := grams[0]
+	if perCluster {
+		Mm = make([]float64, P*P)
+		for _, m := range grams {
+			for j, v := range m {
+				Mm[j] += v
+			}
+		}
 	}
 	// W = Lambda^-1/2 U' D^-1/2 over the eigenvalues of D^-1/2 M D^-1/2
 	// above RankTolerance times the largest.
 	dsc := make([]float64, P)
 	for j := range dsc {
-		if v := M[j*P+j]; v > 0 {
+		if v := Mm[j*P+j]; v > 0 {
 			dsc[j] = 1 / math.Sqrt(v)
 		}
 	}
 	S := mat.NewSymDense(P, nil)
 	for a := 0; a < P; a++ {
 		for b := a; b < P; b++ {
-			S.SetSym(a, b, M[a*P+b]*dsc[a]*dsc[b])
+			S.SetSym(a, b, Mm[a*P+b]*dsc[a]*dsc[b])
 		}
 	}
 	var es mat.EigenSym
@@ -231,14 +275,9 @@ func oneClusterCombinations(pr *problem, theta []float64, clusters []string, w f
 		return z
 	}
 	// The whitened meat and its null space.
-	keys := make([]string, 0, len(sums))
-	for k := range sums {
-		keys = append(keys, k)
-	}
-	sort.Strings(keys)
 	B := mat.NewSymDense(r, nil)
-	for _, k := range keys {
-		z := whiten(sums[k])
+	for g := range keys {
+		z := whiten(sums[g])
 		for a := 0; a < r; a++ {
 			for b := a; b < r; b++ {
 				B.SetSym(a, b, B.At(a, b)+z[a]*z[b])
@@ -265,46 +304,41 @@ func oneClusterCombinations(pr *problem, theta []float64, clusters []string, w f
 	if len(null) == 0 {
 		return nil, nil, minv, nil
 	}
-	// Each cluster's rows projected on the null space: a right singular
-	// vector of singular value 1 lies in that cluster alone.
+	// Q = null' W (nk x P) projects a weighted score on the null space:
+	// t_i = Q w_i s_i; each cluster's sum of t_i t_i'.
 	nk := len(null)
+	Q := make([]float64, nk*P)
+	for m, y := range null {
+		for a, row := range W {
+			for j := range row {
+				Q[m*P+j] += y[a] * row[j]
+			}
+		}
+	}
+	var Cg [][]float64 // each cluster's sum of t_i t_i'
+	if perCluster {
+		// Q M_g Q'.
+		for _, m := range grams {
+			Cg = append(Cg, aMAt(Q, nk, P, m))
+		}
+	} else {
+		Cg, err = projectedGrams(pr, theta, w, idx, G, Q, nk)
+		if err != nil {
+			return nil, nil, nil, err
+		}
+	}
 	var dirs [][]float64
 	var ids []string
-	err = nil
-	byRow := map[int][]float64{}
-	if e := pr.rowScores(theta, func(i int, s []float64) {
-		wi := w(i)
-		if wi <= 0 {
-			return
+	for g, C := range Cg {
+		Cs := mat.NewSymDense(nk, C)
+		if !es.Factorize(Cs, true) {
+			return nil, nil, nil, fmt.Errorf("cluster %q: its rows' scores could not be decomposed", keys[g])
 		}
-		ws := make([]float64, P)
-		for j := range s {
-			ws[j] = wi * s[j]
-		}
-		z := whiten(ws)
-		t := make([]float64, nk)
-		for k, y := range null {
-			t[k] = dot(y, z)
-		}
-		byRow[i] = t
-	}); e != nil {
-		return nil, nil, nil, e
-	}
-	for _, k := range keys {
-		rs := rows[k]
-		T := mat.NewDense(len(rs), nk, nil)
-		for a, i := range rs {
-			T.SetRow(a, byRow[i])
-		}
-		var svd mat.SVD
-		if !svd.Factorize(T, mat.SVDThinV) {
-			return nil, nil, nil, fmt.Errorf("cluster %q: its rows' scores could not be decomposed", k)
-		}
-		sv := svd.Values(nil)
+		cv := es.Values(nil)
 		var V mat.Dense
-		svd.VTo(&V)
-		for c, s := range sv {
-			if s*s < 1-boundTolerance {
+		es.VectorsTo(&V)
+		for c, l := range cv {
+			if l < 1-boundTolerance {
 				continue
 			}
 			// y = null' u in whitened coordinates; v = W' y in the
@@ -323,10 +357,102 @@ func oneClusterCombinations(pr *problem, theta []float64, clusters []string, w f
 				}
 			}
 			dirs = append(dirs, v)
-			ids = append(ids, k)
+			ids = append(ids, keys[g])
 		}
 	}
 	return dirs, ids, minv, nil
+}
+
+// gramBudget is the most values oneClusterCombinations holds for the
+// clusters' own score cross-products (G P^2) and their blocks of rows; with
+// more it reads the rows a second time (projectedGrams). A variable so
+// that a test can take the second way.
+var gramBudget = 1 << 22
+
+// projectedGrams reads the rows of pr at theta again and returns, for each
+// of the G clusters (idx: each row's), the sum of t_i t_i' over its rows,
+// t_i = Q w_i s_i (Q nk x P), the rows taken in blocks of up to 256 (fewer
+// with many clusters, at most about 4M values held).
+func projectedGrams(pr *problem, theta []float64, w func(int) float64, idx []int32, G int, Q []float64, nk int) ([][]float64, error) {
+	P := len(theta)
+	T := newRowGram(G, nk, max(1, min(256, (1<<22)/max(1, G*nk))))
+	err := pr.rowScores(theta, func(i int, s []float64) {
+		wi := w(i)
+		if wi <= 0 {
+			return
+		}
+		g := int(idx[i])
+		t := T.row(g)
+		for m := range t {
+			q := Q[m*P : (m+1)*P]
+			v := 0.0
+			for j, sj := range s {
+				v += q[j] * sj
+			}
+			t[m] = wi * v
+		}
+		T.add(g)
+	})
+	if err != nil {
+		return nil, err
+	}
+	return T.sums(), nil
+}
+
+// rowGram adds the outer products of rows of n values into one n x n
+// matrix per group, a block of rows at a time (a symmetric rank-k update):
+// row(g) is the next row of group g to fill, add(g) takes it.
+type rowGram struct {
+	n, block int
+	buf      [][]float64 // per group: block rows of n
+	fill     []int
+	gram     [][]float64 // per group: n x n, upper triangle until sums
+}
+
+func newRowGram(groups, n, block int) *rowGram {
+	rg := &rowGram{n: n, block: block, buf: make([][]float64, groups), fill: make([]int, groups), gram: make([][]float64, groups)}
+	for g := range rg.buf {
+		rg.buf[g] = make([]float64, block*n)
+		rg.gram[g] = make([]float64, n*n)
+	}
+	return rg
+}
+
+func (rg *rowGram) row(g int) []float64 {
+	k := rg.fill[g] * rg.n
+	return rg.buf[g][k : k+rg.n]
+}
+
+func (rg *rowGram) add(g int) {
+	rg.fill[g]++
+	if rg.fill[g] == rg.block {
+		rg.flush(g)
+	}
+}
+
+func (rg *rowGram) flush(g int) {
+	k := rg.fill[g]
+	if k == 0 {
+		return
+	}
+	a := blas64.General{Rows: k, Cols: rg.n, Stride: rg.n, Data: rg.buf[g][:k*rg.n]}
+	c := blas64.Symmetric{Uplo: blas.Upper, N: rg.n, Stride: rg.n, Data: rg.gram[g]}
+	blas64.Syrk(blas.Trans, 1, a, 1, c)
+	rg.fill[g] = 0
+}
+
+// sums returns each group's full matrix of outer products.
+func (rg *rowGram) sums() [][]float64 {
+	n := rg.n
+	for g, m := range rg.gram {
+		rg.flush(g)
+		for a := 0; a < n; a++ {
+			for b := a + 1; b < n; b++ {
+				m[b*n+a] = m[a*n+b]
+			}
+		}
+	}
+	return rg.gram
 }
 
 // markNotEstimable sets the NaN rows and columns of V (P x P) of the
