@@ -268,6 +268,14 @@ func lowerRun(s string) int {
 	return n
 }
 
+// notAvailableAt reports whether the "/" before h[i] is that of a word
+// "n/a" (not available), which stays whole: in a column of them broken at
+// the slash it read "n/" over "a".
+func notAvailableAt(h string, i int) bool {
+	word := func(c byte) bool { return c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' }
+	return i >= 2 && h[i-2] == 'n' && (i < 3 || !word(h[i-3])) && i < len(h) && h[i] == 'a' && (i+1 == len(h) || !word(h[i+1]))
+}
+
 func nameBreaks(h string, follow byte) string {
 	if !strings.ContainsAny(h, "_&./") && h == strings.ToLower(h) {
 		return h
@@ -308,6 +316,7 @@ func nameBreaks(h string, follow byte) string {
 			next = h[i]
 		}
 		switch {
+		case c == '/' && notAvailableAt(h, i):
 		case (c == '_' || c == '/') && isWord(next):
 			b.WriteString("<wbr>")
 		case c == '.' && i >= 2 && isWord(h[i-2]) && isLetter(next):

@@ -7,8 +7,8 @@ import (
 
 // TestNameBreaks: long names in table cells may break after "_", ".",
 // "&" and "/" and at camel-case joins (not after a name's short prefix,
-// McFadden), never inside a word, a number or a
-// character reference, and text outside tables is left as goldmark writes
+// McFadden), never inside a word, a number, a character reference or
+// n/a, and text outside tables is left as goldmark writes
 // it. The expected HTML is written out by hand.
 func TestNameBreaks(t *testing.T) {
 	d := &doc{}
@@ -19,6 +19,7 @@ func TestNameBreaks(t *testing.T) {
 	d.b.WriteString("| cumulative/constrained/logit | 12.5% |\n")
 	d.b.WriteString("| yearsLived &amp; x | 3 |\n")
 	d.b.WriteString("| McFadden, McKelvey-Zavoina | 4 |\n")
+	d.b.WriteString("| n/a | y/n/a |\n")
 	got, err := d.html("t")
 	if err != nil {
 		t.Fatal(err)
@@ -33,6 +34,8 @@ func TestNameBreaks(t *testing.T) {
 		"<td>cumulative/<wbr>constrained/<wbr>logit</td>",
 		"<td>years<wbr>Lived &amp; x</td>",
 		"<td>McFadden, McKelvey-Zavoina</td>", // a name's prefix is no camel-case join
+		"<td>n/a</td>",                        // not available stays whole
+		"<td style=\"text-align:right\">y/<wbr>n/a</td>",
 	} {
 		if !strings.Contains(h, want) {
 			t.Errorf("report.html lacks %q", want)
