@@ -231,18 +231,7 @@ func oneClusterCombinations(pr *problem, theta []float64, clusters []string, w f
 	}
 	// W = Lambda^-1/2 U' D^-1/2 over the eigenvalues of D^-1/2 M D^-1/2
 	// above RankTolerance times the largest.
-	dsc := make([]float64, P)
-	for j := range dsc {
-		if v := Mm[j*P+j]; v > 0 {
-			dsc[j] = 1 / math.Sqrt(v)
-		}
-	}
-	S := mat.NewSymDense(P, nil)
-	for a := 0; a < P; a++ {
-		for b := a; b < P; b++ {
-			S.SetSym(a, b, Mm[a*P+b]*dsc[a]*dsc[b])
-		}
-	}
+	dsc, S := unitDiagonal(Mm, P)
 	var es mat.EigenSym
 	if !es.Factorize(S, true) {
 		return nil, nil, nil, fmt.Errorf("the rows' score cross-products could not be decomposed")
@@ -361,6 +350,19 @@ func oneClusterCombinations(pr *problem, theta []float64, clusters []string, w f
 		}
 	}
 	return dirs, ids, minv, nil
+}
+
+// unitDiagonal is the symmetric P x P matrix M scaled to a unit diagonal,
+// D^-1/2 M D^-1/2, with the scale D^-1/2 (0 where M's diagonal is not
+// positive).
+func unitDiagonal(M []float64, P int) ([]float64, *mat.SymDense) {
+	dsc := make([]float64, P)
+	for j := range dsc {
+		if v := M[j*P+j]; v > 0 {
+			dsc[j] = 1 / math.Sqrt(v)
+		}
+	}
+	return dsc, scaledSym(M, P, dsc)
 }
 
 // gramBudget is the most values oneClusterCombinations holds for the
@@ -604,18 +606,7 @@ func meatMaySingular(A, B []float64, P, G int) bool {
 	if G <= P {
 		return true
 	}
-	dsc := make([]float64, P)
-	for j := range dsc {
-		if v := A[j*P+j]; v > 0 {
-			dsc[j] = 1 / math.Sqrt(v)
-		}
-	}
-	S := mat.NewSymDense(P, nil)
-	for a := 0; a < P; a++ {
-		for b := a; b < P; b++ {
-			S.SetSym(a, b, A[a*P+b]*dsc[a]*dsc[b])
-		}
-	}
+	dsc, S := unitDiagonal(A, P)
 	var es mat.EigenSym
 	if !es.Factorize(S, true) {
 		return true
