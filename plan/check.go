@@ -279,17 +279,11 @@ func (d *decoder) sourceKey(p *Plan, col string) string {
 	return "predictors"
 }
 
-// checkStability refuses selection_stability on multiply imputed data
-// (data.imputed, or data.missing: impute): resampling the incomplete rows
-// and imputing each resample again is not built.
+// checkStability refuses selection_stability on imputed sets made
+// elsewhere (data.imputed): a resample would have to be imputed again,
+// which only the program's own imputation (data.missing: impute) can do.
 func (d *decoder) checkStability(p *Plan) {
-	if p.SelectionStability == nil {
-		return
-	}
-	switch {
-	case p.Data.Imputed != nil:
-		d.errAt("selection_stability", "is not available with data.imputed: the bootstrap would have to resample the incomplete rows and impute each resample again, which sets made elsewhere cannot; remove selection_stability, or analyse the complete rows")
-	case p.Data.Imputes():
-		d.errAt("selection_stability", "is not available with data.missing: impute (resampling the incomplete rows and imputing each resample is not built yet); remove selection_stability, or set data.missing: drop for a stability study of the complete rows")
+	if p.SelectionStability != nil && p.Data.Imputed != nil {
+		d.errAt("selection_stability", "is not available with data.imputed: each bootstrap resample of the rows would have to be imputed again, which sets made elsewhere cannot be; remove selection_stability, or impute with the program (data.missing: impute, data.imputation), whose resamples are imputed anew")
 	}
 }

@@ -38,8 +38,13 @@ func writeStability(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	if r.Analysis != nil && r.Analysis.Errors.Sampling {
 		sampling = fmt.Sprintf(" The sampling weights of %s go with their rows and are rescaled to sum to the rows drawn; the bootstrap ignores any survey design beyond them (strata, stages, finite-population corrections).", mdCode(r.Plan.Data.Weights))
 	}
-	d.p("The plan (selection_stability) asks how stable the choice the rules made is. The whole decision procedure, the same grid of candidates, the same tests and the same rules in order%s, was run again on %d bootstrap resamples of the data used here, drawn with seed %d: each resample draws, with replacement, as many units as the data have, %s.%s The terms' constants (centring means, scales, knots, polynomial bases) stay those of the primary analysis. Each resample's fits were made on this machine (not sent to queue workers), one fit at a time per resample, several resamples at once.",
-		stepwiseWords(r), st.Resamples, st.Seed, stabilityUnits(r, st), sampling)
+	imputed := ""
+	if st.Imputed {
+		im := r.Plan.Data.Imputation
+		imputed = fmt.Sprintf(" The rows drawn are the rows as read, the incomplete ones among them, and each resample is imputed anew by chained equations with the plan's data.imputation settings (%d sets, %d iterations, the same imputation models), its imputation seed drawn from the resample's own stream: bootstrap, then impute, so that the shares carry the uncertainty of the imputation too; the fits of a resample's imputed sets are pooled by Rubin's rules and the rules read the pooled fits, as in the primary analysis.", im.Sets, im.Iterations)
+	}
+	d.p("The plan (selection_stability) asks how stable the choice the rules made is. The whole decision procedure, the same grid of candidates, the same tests and the same rules in order%s, was run again on %d bootstrap resamples of the data used here, drawn with seed %d: each resample draws, with replacement, as many units as the data have, %s.%s%s The terms' constants (centring means, scales, knots, polynomial bases) stay those of the primary analysis. Each resample's fits were made on this machine (not sent to queue workers), one fit at a time per resample, several resamples at once.",
+		stepwiseWords(r), st.Resamples, st.Seed, stabilityUnits(r, st), imputed, sampling)
 
 	var rows [][]string
 	var primary *runner.StabilityModel
@@ -214,5 +219,9 @@ func stabilityMethods(r *runner.Result, or *runner.OutcomeResult) string {
 	if st == nil {
 		return ""
 	}
-	return fmt.Sprintf("The stability of the model choice was assessed, as the plan fixed in advance, by repeating the whole decision procedure (grid, tests and rules, in order) on %d nonparametric bootstrap resamples of the %s used (seed %d), the terms' constants kept from the primary analysis, and reporting how often each model was chosen (with its Monte Carlo standard error), how often each rule rejected each model and how often each hypothesis was rejected in the model chosen in the resample.", st.Resamples, unitWord(st), st.Seed)
+	anew := ""
+	if st.Imputed {
+		anew = ", each resample of the rows as read imputed anew with the same settings before the procedure (bootstrap, then impute)"
+	}
+	return fmt.Sprintf("The stability of the model choice was assessed, as the plan fixed in advance, by repeating the whole decision procedure (grid, tests and rules, in order) on %d nonparametric bootstrap resamples of the %s used (seed %d%s), the terms' constants kept from the primary analysis, and reporting how often each model was chosen (with its Monte Carlo standard error), how often each rule rejected each model and how often each hypothesis was rejected in the model chosen in the resample.", st.Resamples, unitWord(st), st.Seed, anew)
 }

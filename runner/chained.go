@@ -12,6 +12,7 @@ import (
 	"ordplan/plan"
 	"ordplan/runner/data"
 	"ordplan/runner/design"
+	"ordplan/runner/fit"
 	"ordplan/runner/impute/chained"
 )
 
@@ -69,7 +70,6 @@ func (a *Analysis) loadIncomplete(r Reading) (*data.Dataset, error) {
 // data.imputation.sets times, and the imputed sets get the design frozen
 // on the first of them.
 func chainedSets(a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Dataset, *design.Design, error) {
-	spec := r.Design
 	ds, err := a.loadIncomplete(r)
 	if err != nil {
 		return nil, nil, nil, err
@@ -80,6 +80,18 @@ func chainedSets(a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Data
 	if ds.Incomplete == 0 {
 		return nil, nil, nil, errNothingToImpute
 	}
+	return imputeChained(a, r, ds, a.Imputation.Seed, nil, opt)
+}
+
+// imputeChained imputes ds, an outcome's rows read with the incomplete
+// ones kept (or a bootstrap resample of them, selection_stability), by
+// chained equations with the plan's data.imputation settings and the
+// given seed. The imputed sets get the design frozen on the first of
+// them, or the design frozen, when given (a resample keeps the primary
+// analysis's).
+func imputeChained(a *Analysis, r Reading, ds *data.Dataset, seed uint64, frozen *design.Design, opt Options) (*ImputedRun, []*data.Dataset, *design.Design, error) {
+	spec := r.Design
+	var err error
 	var notes []string
 	observed := ds
 	if ds.Weights != nil {
@@ -90,13 +102,13 @@ func chainedSets(a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Data
 		notes = append(notes, fmt.Sprintf("The frequency weights count identical units: for imputation each of the %d rows was expanded into as many rows as its weight, %d rows in all, and every unit was imputed on its own; the imputed sets and their row counts are those of the expanded rows", rows, ds.N))
 	}
 	im := a.Imputation
-	if im.WriteSets && ds.N*im.Sets > maxWrittenRows {
+	if im.WriteSets && frozen == nil && ds.N*im.Sets > maxWrittenRows {
 		return nil, nil, nil, fmt.Errorf("%s: data.imputation.write_sets: the %d imputed sets of outcome %q, %d rows each, would write %d rows, more than the %d ordplan writes into the output folder (the file is made in memory and written with the other outputs, all or nothing): impute fewer sets (data.imputation.sets), or leave write_sets off",
 			a.Source, im.Sets, r.Outcome, ds.N, ds.N*im.Sets, maxWrittenRows)
 	}
 	cols := chainedColumns(im, r, ds, a.Declared)
 	stream := uint64(slices.IndexFunc(a.Outcomes, func(o Reading) bool { return o.Outcome == r.Outcome }))
-	cfg := chained.Config{Sets: im.Sets, Iterations: im.Iterations, Seed: im.Seed, Stream: stream, Donors: chainedDonors, Workers: opt.Workers}
+	cfg := chained.Config{Sets: im.Sets, Iterations: im.Iterations, Seed: seed, Stream: stream, Donors: chainedDonors, Workers: opt.Workers}
 	if ip, ok := opt.Progress.(ImputationProgress); ok {
 		cfg.Progress = func(done, total int) { ip.Imputed(r.Outcome, done, total) }
 	}
@@ -108,15 +120,24 @@ func chainedSets(a *Analysis, r Reading, opt Options) (*ImputedRun, []*data.Data
 	for s, set := range res.Sets {
 		sets[s] = completed(ds, set, len(spec.Sources))
 	}
-	dz, fds, err := designSets(spec, sets)
+	dz, fds := frozen, make([]*fit.Data, len(sets))
+	if frozen == nil {
+		dz, fds, err = designSets(spec, sets)
+	} else {
+		for k, set := range sets {
+			if fds[k], err = frozenData(frozen, set); err != nil {
+				break
+			}
+		}
+	}
 	if err != nil {
 		return nil, nil, nil, fmt.Errorf("%s: %v (outcome %q)", a.Source, err, r.Outcome)
 	}
 	run := &ImputedRun{M: im.Sets, Source: "chained", Files: []string{a.DataFile}, Rows: ds.N, Sets: fds, Data: sets, observed: observed,
-		Chained: &ChainedRecord{Outcome: r.Outcome, Method: "chained equations", Sets: im.Sets, Iterations: im.Iterations, Seed: im.Seed,
+		Chained: &ChainedRecord{Outcome: r.Outcome, Method: "chained equations", Sets: im.Sets, Iterations: im.Iterations, Seed: seed,
 			Stream: stream, Donors: chainedDonors, RowsIncomplete: ds.Incomplete, Visits: res.Visits, Models: res.Models, Trace: res.Trace,
 			Notes: append(notes, res.Notes...), Unheld: res.Unheld, ConvergenceTable: im.ConvergenceTable}}
-	if im.WriteSets {
+	if im.WriteSets && frozen == nil {
 		run.completed = func() ([]byte, error) { return completedCSV(sets, r) }
 	}
 	for k, set := range sets {

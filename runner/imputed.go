@@ -800,36 +800,9 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 			or.Notes = append(or.Notes, "Imputation: "+n)
 		}
 	}
-	for k, d := range run.Sets {
-		if err := fit.CheckDesign(d); err != nil {
-			if _, _, ok := r.collinearTerms(err, dz, an.Source); ok {
-				return nil, an.designError(r, dz, err, fmt.Sprintf("imputed set %d", k+1))
-			}
-			return nil, fmt.Errorf("%s: outcome %q, imputed set %d: %v", an.Source, oc.Column, k+1, err)
-		}
-	}
-	if err := an.checkGridLevels(r, dz); err != nil {
+	if err := decideImputed(an, r, or, sets, opt); err != nil {
 		return nil, err
 	}
-	backward := an.Models.Backward()
-	or.FreeSets, or.Stepwise = freeSets(an, or.Terms, pooledStepwise(an, or), backward, opt.Workers)
-	jobs, notes := gridJobs(an, or.Terms, or.FreeSets, backward)
-	or.Notes = append(or.Notes, notes...)
-	perSet, err := poolJobs(an, sets, or.Terms, jobs, run, opt, oc.Column)
-	if err != nil {
-		return nil, err
-	}
-	or.Fits = jobs
-	run.Fits = perSet
-	if w := an.SingularModels(r, &ds, jobs, len(ds.Categories), allColumns(or.Terms)); w != "" {
-		or.Notes = append(or.Notes, w)
-	}
-	for _, a := range an.Models.Approaches {
-		for _, l := range an.Models.Links {
-			or.Tests = append(or.Tests, pooledTestBlock(an, or, perSet, a, l))
-		}
-	}
-	applyRules(an, or)
 	runPooledFitStats(an, or)
 	runPooledGoodnessOfFit(an, or)
 	if !opt.NoTermTests {
@@ -846,6 +819,46 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 		or.Notes = append(or.Notes, ImputedClusterNote)
 	}
 	return or, nil
+}
+
+// decideImputed is the decision procedure on imputed sets (or.Imputed,
+// sets their data): the partial sets (stepwise on pooled fits), the grid
+// fitted on every set and pooled, the pooled tests and the rules, in
+// order. The resamples of selection_stability on data the program
+// imputes take this same path.
+func decideImputed(an *Analysis, r Reading, or *OutcomeResult, sets []*data.Dataset, opt Options) error {
+	run, dz, ds := or.Imputed, or.Design, or.Data
+	for k, d := range run.Sets {
+		if err := fit.CheckDesign(d); err != nil {
+			if _, _, ok := r.collinearTerms(err, dz, an.Source); ok {
+				return an.designError(r, dz, err, fmt.Sprintf("imputed set %d", k+1))
+			}
+			return fmt.Errorf("%s: outcome %q, imputed set %d: %v", an.Source, or.Outcome.Column, k+1, err)
+		}
+	}
+	if err := an.checkGridLevels(r, dz); err != nil {
+		return err
+	}
+	backward := an.Models.Backward()
+	or.FreeSets, or.Stepwise = freeSets(an, or.Terms, pooledStepwise(an, or), backward, opt.Workers)
+	jobs, notes := gridJobs(an, or.Terms, or.FreeSets, backward)
+	or.Notes = append(or.Notes, notes...)
+	perSet, err := poolJobs(an, sets, or.Terms, jobs, run, opt, or.Outcome.Column)
+	if err != nil {
+		return err
+	}
+	or.Fits = jobs
+	run.Fits = perSet
+	if w := an.SingularModels(r, ds, jobs, len(ds.Categories), allColumns(or.Terms)); w != "" {
+		or.Notes = append(or.Notes, w)
+	}
+	for _, a := range an.Models.Approaches {
+		for _, l := range an.Models.Links {
+			or.Tests = append(or.Tests, pooledTestBlock(an, or, perSet, a, l))
+		}
+	}
+	applyRules(an, or)
+	return nil
 }
 
 // ImputedClusterNote says which references the clustered errors take on

@@ -51,6 +51,9 @@ type Stability struct {
 	// report's confidence level, on the adjusted p-value when the plan
 	// corrects for multiplicity.
 	Alpha float64 `json:"alpha,omitempty"`
+	// Imputed says that each resample drew the rows as read, incomplete
+	// ones included, and was imputed anew (data.missing: impute).
+	Imputed bool `json:"imputed_anew,omitempty"`
 	// Level is the coverage of the percentile intervals (the report's).
 	Level float64 `json:"interval_level,omitempty"`
 }
@@ -152,6 +155,7 @@ func Resample(ds *data.Dataset, rng *rand.Rand) *data.Dataset {
 	out.Weights = weights
 	out.Cluster = cluster
 	out.Counts = make([]float64, len(ds.Categories))
+	out.Incomplete = 0
 	for i, r := range rows {
 		out.Y[i] = ds.Y[r]
 		copy(out.X[i*ds.K:(i+1)*ds.K], ds.X[r*ds.K:(r+1)*ds.K])
@@ -163,7 +167,14 @@ func Resample(ds *data.Dataset, rng *rand.Rand) *data.Dataset {
 		if weights != nil {
 			w = weights[i]
 		}
-		out.Counts[ds.Y[r]] += w
+		if ds.Y[r] >= 0 {
+			out.Counts[ds.Y[r]] += w
+		}
+		// A row kept for imputation (data.missing: impute) misses its
+		// outcome (-1) or a predictor (NaN).
+		if ds.Y[r] < 0 || slices.ContainsFunc(ds.X[r*ds.K:(r+1)*ds.K], math.IsNaN) {
+			out.Incomplete++
+		}
 	}
 	return &out
 }
@@ -261,7 +272,7 @@ func resampleRNG(seed uint64, oi, r int) *rand.Rand {
 // an Executor.
 func runStability(an *Analysis, res *Result, opt Options) {
 	st := res.Plan.SelectionStability
-	if st == nil || opt.NoStability || an.Imputed != nil || an.Imputes() {
+	if st == nil || opt.NoStability || an.Imputed != nil {
 		return
 	}
 	workers := opt.Workers
@@ -313,7 +324,11 @@ func resamplePasses(an *Analysis, res *Result, r int, seed uint64) []stabilityPa
 	out := make([]stabilityPass, len(res.Outcomes))
 	sub := &Result{Plan: res.Plan, Analysis: an}
 	for oi, or := range res.Outcomes {
-		ror, err := resampleOutcome(an, an.Outcomes[oi], or, resampleRNG(seed, oi, r))
+		resample := resampleOutcome
+		if imputesResamples(or) {
+			resample = resampleImputedOutcome
+		}
+		ror, err := resample(an, an.Outcomes[oi], or, resampleRNG(seed, oi, r))
 		if err != "" {
 			out[oi].failed = err
 			ror = &OutcomeResult{Outcome: or.Outcome}
@@ -389,11 +404,56 @@ func resampleOutcome(an *Analysis, rd Reading, primary *OutcomeResult, rng *rand
 	return or, ""
 }
 
+// imputesResamples says whether or's resamples are imputed anew: its
+// values were imputed by the program (data.missing: impute), so each
+// resample draws the rows as read, the incomplete ones among them, and
+// imputes them again (bootstrap, then impute).
+func imputesResamples(or *OutcomeResult) bool {
+	return or.Imputed != nil && or.Imputed.Chained != nil && or.Observed != nil
+}
+
+// resampled is the data set or's resamples draw from: the rows used, or
+// the rows as read with the incomplete ones when each resample is imputed
+// anew.
+func resampled(or *OutcomeResult) *data.Dataset {
+	if imputesResamples(or) {
+		return or.Observed
+	}
+	return or.Data
+}
+
+// resampleImputedOutcome draws one resample of the rows as read, the
+// incomplete ones among them (before frequency weights are expanded into
+// rows), imputes it by chained equations with the plan's data.imputation
+// settings and a seed drawn from the resample's stream, and runs the
+// decision procedure on the pooled fits (decideImputed) with the primary
+// analysis's design, then the hypotheses.
+func resampleImputedOutcome(an *Analysis, rd Reading, primary *OutcomeResult, rng *rand.Rand) (or *OutcomeResult, failed string) {
+	defer func() {
+		if e := recover(); e != nil {
+			or, failed = nil, fmt.Sprintf("internal error: %v (please report it with the command line that caused it)", e)
+		}
+	}()
+	ds := Resample(primary.Observed, rng)
+	run, sets, dz, err := imputeChained(an, rd, ds, rng.Uint64(), primary.Design, Options{Workers: 1})
+	if err != nil {
+		return nil, err.Error()
+	}
+	run.obs = completeObs(run.Sets[0], an.Errors.Sampling)
+	first := *sets[0]
+	or = &OutcomeResult{Outcome: primary.Outcome, Data: &first, Observed: ds, FitData: run.Sets[0], Design: dz, Terms: primary.Terms, dataOptions: primary.dataOptions, Imputed: run}
+	if err := decideImputed(an, rd, or, sets, Options{Workers: 1}); err != nil {
+		return nil, err.Error()
+	}
+	testHypotheses(an, or)
+	return or, ""
+}
+
 // summarizeStability turns the passes of one outcome into its shares.
 func summarizeStability(an *Analysis, or *OutcomeResult, ps []stabilityPass, st *plan.SelectionStability) *Stability {
 	R := len(ps)
-	unit, units := resampleUnit(or.Data)
-	s := &Stability{Resamples: R, Seed: st.Seed, Unit: unit, Units: units, Alpha: 1 - an.Level, Level: an.Level}
+	unit, units := resampleUnit(resampled(or))
+	s := &Stability{Imputed: imputesResamples(or), Resamples: R, Seed: st.Seed, Unit: unit, Units: units, Alpha: 1 - an.Level, Level: an.Level}
 	if or.Chosen != nil {
 		s.Primary = or.Chosen.ID
 	}

@@ -123,11 +123,17 @@ func TestStabilityOfAClearChoice(t *testing.T) {
 }
 
 // TestStabilityDeterministic: the same seed gives the same shares, byte
-// for byte, whatever the workers, with rows and with whole clusters.
+// for byte, whatever the workers, with rows, with whole clusters and with
+// resamples imputed anew (x blanked in every 9th row, data.missing:
+// impute).
 func TestStabilityDeterministic(t *testing.T) {
-	for _, extra := range []string{"", ", cluster: site"} {
+	imputing := ", missing: impute, imputation: {sets: 2, iterations: 2}"
+	for _, extra := range []string{"", ", cluster: site", imputing} {
 		dir := t.TempDir()
 		stageData(t, dir, 300, true)
+		if extra == imputing {
+			blankEvery(t, filepath.Join(dir, "d.csv"), 9)
+		}
 		p := stagePlan(t, dir, extra)
 		var first []byte
 		for _, w := range []int{1, 3} {
@@ -147,8 +153,11 @@ func TestStabilityDeterministic(t *testing.T) {
 				t.Errorf("%q: workers 1 and 3 differ:\n%s\n%s", extra, first, b)
 			}
 		}
-		if extra != "" && !bytes.Contains(first, []byte(`"unit":"clusters","units":30`)) {
+		if extra == ", cluster: site" && !bytes.Contains(first, []byte(`"unit":"clusters","units":30`)) {
 			t.Errorf("clusters not resampled: %s", first)
+		}
+		if extra == imputing && !bytes.Contains(first, []byte(`"unit":"rows","units":300`)) || extra == imputing != bytes.Contains(first, []byte(`"imputed_anew":true`)) {
+			t.Errorf("%q: not the rows as read, imputed anew: %s", extra, first)
 		}
 	}
 }
@@ -321,5 +330,24 @@ func TestStabilityCountsFailedResamples(t *testing.T) {
 	}
 	if total != 30 || st.Failed.Count == 0 || st.Failed.Count > 20 || len(st.Failures) == 0 || !strings.Contains(st.Failures[0], "g.rare") {
 		t.Errorf("%d resamples counted, %d failed: %q", total, st.Failed.Count, st.Failures)
+	}
+}
+
+// blankEvery blanks x (the second field) in every k-th data row of the
+// CSV file at path.
+func blankEvery(t *testing.T, path string, k int) {
+	t.Helper()
+	b, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(string(b), "\n")
+	for i := k; i < len(lines); i += k {
+		if f := strings.Split(lines[i], ","); len(f) == 3 {
+			lines[i] = f[0] + ",," + f[2]
+		}
+	}
+	if err := os.WriteFile(path, []byte(strings.Join(lines, "\n")), 0o644); err != nil {
+		t.Fatal(err)
 	}
 }
