@@ -53,6 +53,9 @@ func PowerOutputs(pr *simulate.PowerResult, reg *lock.Status) (map[string][]byte
 		}
 		d.p("The plan's sensitivity analyses (%s) are not run in the replicates: every rate below is that of the primary analysis; `ordplan rehearse` runs them once on simulated data.", strings.Join(names, ", "))
 	}
+	if pr.StabilityNotRun {
+		d.p("The plan's `selection_stability` (bootstrap resamples of the data, to see how stable the model choice is) is not run in the replicates: a power study already repeats the whole procedure on new data sets, and how often each candidate model is chosen is in its table below; `ordplan run` (and `ordplan rehearse`) run it.")
+	}
 	if len(pr.Missing) > 0 {
 		d.p("%s In every replicate the plan's `data.missing` handled them as it will handle the real data's, so the rates below count the information the missing values take away.", simulatedMissingText(pr.Missing))
 	}

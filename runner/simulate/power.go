@@ -179,7 +179,10 @@ type PowerResult struct {
 	// SensitivityNotRun names the plan's sensitivity analyses, which the
 	// replicates do not run (their power is that of the primary analysis).
 	SensitivityNotRun []string `json:"sensitivity_not_run,omitempty"`
-	Version           string   `json:"version"`
+	// StabilityNotRun is set when the plan asks for selection_stability,
+	// whose bootstrap resamples the replicates do not run.
+	StabilityNotRun bool   `json:"selection_stability_not_run,omitempty"`
+	Version         string `json:"version"`
 }
 
 // replicate is what one run gave, per outcome.
@@ -246,6 +249,7 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 	for _, sa := range p.Sensitivity {
 		res.SensitivityNotRun = append(res.SensitivityNotRun, sa.Name)
 	}
+	res.StabilityNotRun = p.SelectionStability != nil
 	res.Missing = sim.MissingRecord(nil, 0)
 	res.Weights = sim.WeightsRecord()
 	res.Truncated = sim.TruncationRecord(nil, 0)
