@@ -221,7 +221,7 @@ func stabilityMethods(r *runner.Result, or *runner.OutcomeResult) string {
 	}
 	anew := ""
 	if st.Imputed {
-		anew = ", each resample of the rows as read imputed anew with the same settings before the procedure (bootstrap, then impute)"
+		anew = "; each resample of the rows as read was imputed anew with the same settings before the procedure: bootstrap, then impute"
 	}
 	return fmt.Sprintf("The stability of the model choice was assessed, as the plan fixed in advance, by repeating the whole decision procedure (grid, tests and rules, in order) on %d nonparametric bootstrap resamples of the %s used (seed %d%s), the terms' constants kept from the primary analysis, and reporting how often each model was chosen (with its Monte Carlo standard error), how often each rule rejected each model and how often each hypothesis was rejected in the model chosen in the resample.", st.Resamples, unitWord(st), st.Seed, anew)
 }
