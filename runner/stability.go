@@ -193,6 +193,7 @@ func resampleRows(ds *data.Dataset, rng *rand.Rand) (rows []int, weights []float
 			}
 			members[c] = append(members[c], i)
 		}
+		used := map[string]bool{}
 		draws := make([]int, len(ids))
 		for range ids {
 			draws[rng.IntN(len(ids))]++
@@ -203,7 +204,13 @@ func resampleRows(ds *data.Dataset, rng *rand.Rand) (rows []int, weights []float
 			for k := 1; k <= draws[g]; k++ {
 				name := id
 				if k > 1 {
+					// A name no cluster of the data has (an id may
+					// itself end in #2).
 					name = fmt.Sprintf("%s#%d", id, k)
+					for members[name] != nil || used[name] {
+						name += "#"
+					}
+					used[name] = true
 				}
 				for _, i := range members[id] {
 					rows = append(rows, i)

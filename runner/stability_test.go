@@ -234,6 +234,18 @@ func TestResampleDraws(t *testing.T) {
 			drawn[orig]++
 		}
 	}
+	// An id that looks like a copy's name stays a cluster of its own.
+	ds.Cluster = []string{"a", "a#2", "b", "c", "c", "c"}
+	for range 200 {
+		r := Resample(ds, rng)
+		rows := map[string]int{}
+		for _, id := range r.Cluster {
+			rows[id]++
+		}
+		if len(rows) != 4 {
+			t.Fatalf("%d clusters drawn of 4: %v", len(rows), r.Cluster)
+		}
+	}
 	for id := range size {
 		// Binomial(3, 1/3): mean 1, sd 0.82.
 		near("cluster "+id+"'s mean draws", drawn[id]/draws, 1, 5*0.817/math.Sqrt(draws))
