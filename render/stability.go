@@ -2,8 +2,12 @@ package render
 
 import (
 	"fmt"
+	"math"
+	"sort"
 	"strconv"
 	"strings"
+
+	"gonum.org/v1/gonum/stat/distuv"
 
 	"ordplan/internal/words"
 	"ordplan/render/numfmt"
@@ -129,7 +133,7 @@ func writeStability(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		d.captioned("Hypotheses over the bootstrap resamples, each in the model chosen there").table([]string{"Hypothesis", "Tested in", "Rejected in", "Share rejected (MC se)", lv + "% percentile interval of the estimate"}, rows)
 		d.p("These shares measure how reproducible the plan's conclusion is when the whole procedure, the choice of model included, is repeated on data like these: they are not the power of the test (which would need data drawn from a stated truth; `ordplan power`), nor p-values, and the percentile intervals are not confidence intervals of the chosen model's parameters, whose meaning changes with the model chosen.")
 	}
-	d.p("Assumptions and limits of this study: it is a bootstrap of a selection procedure on the %s used, so every resample resembles these data, not a new sample from the population; the shares are estimates, with the Monte Carlo error in brackets from %d resamples and a sampling error from the data themselves that the brackets do not show. A resample repeats units, and a model that fits the data only roughly fits a resample more roughly still: a test of a restriction tends to give a larger statistic in a resample (on average about its value in the data plus its degrees of freedom), so tests reject restrictions more often in resamples than they would in new samples where the restriction holds, and the shares lean towards the less constrained models. A small share for the model the primary analysis chose means that the choice is fragile: data slightly different would have led the same rules to another model, and the chosen model's intervals, which treat it as fixed in advance, leave that uncertainty out.", unitWord(st), st.Resamples)
+	d.p("Assumptions and limits of this study: it is a bootstrap of a selection procedure on the %s used, so every resample resembles these data, not a new sample from the population; the shares are estimates, with the Monte Carlo error in brackets from %d resamples and a sampling error from the data themselves that the brackets do not show. A resample repeats units, and a model that fits the data only roughly fits a resample more roughly still: a test of a restriction tends to give a larger statistic in a resample (on average about its value in the data plus its degrees of freedom), so tests reject restrictions more often in resamples than they would in new samples where the restriction holds, and the shares lean towards the less constrained models. A small share for the model the primary analysis chose means that data slightly different would have led the same rules to another model; when a test kept the choice with a statistic within about its degrees of freedom of the critical value, that lean alone makes the share small, and the share then tells how near the rule's margin the choice sits rather than how often a new study would repeat it. Either way the chosen model's intervals, which treat it as fixed in advance, leave that uncertainty out.", unitWord(st), st.Resamples)
 }
 
 // unitWord names the resampled units in a sentence.
@@ -163,7 +167,11 @@ func stabilityReading(or *runner.OutcomeResult, st *runner.Stability, primary *r
 	}
 	c := primary.Chosen
 	s := fmt.Sprintf("Plain reading: the primary analysis chose %s, and the same procedure chose it again in %d of %d resamples, a share of %s.", primary.Model, c.Count, c.Of, c.Text("MC se "))
+	turn := stabilityTurn(or, st, primary.Model)
 	switch {
+	case c.Rate < 0.5 && turn != nil && turn.expected:
+		s += fmt.Sprintf(" The rule that turns it down most often is rule %d (%s), in %d of %d resamples; in the primary analysis that rule kept it: %s. In a resample a test statistic of a restriction comes out at about its value in the data plus its degrees of freedom (here about %s, against the critical value %s), so a test with this p-value is expected to reject the restriction in most resamples: the bootstrap leans towards the less constrained models. The low share shows that the choice sits near this rule's margin, not how often a new study would choose the same model; the chosen model's intervals, which treat the choice as fixed in advance, leave out that the rule could have gone the other way.",
+			turn.number, mdCode(turn.kind), turn.share.Count, turn.share.Of, mdText(turn.reason), numfmt.Stat(turn.shifted), numfmt.Stat(turn.critical))
 	case c.Rate < 0.5:
 		s += " That is less than half: the choice is fragile, and the effects reported for the chosen model carry an uncertainty of the choice that their intervals do not show."
 	case c.Rate < 0.8:
@@ -178,6 +186,82 @@ func stabilityReading(or *runner.OutcomeResult, st *runner.Stability, primary *r
 		s += fmt.Sprintf(" The model chosen most often was %s (%d of %d).", top.Model, top.Chosen.Count, st.Resamples)
 	}
 	return s
+}
+
+// stabilityTurning is the rule that rejects the primary analysis's choice
+// in the most resamples, when it is a test rule that kept the choice in
+// the primary analysis.
+type stabilityTurning struct {
+	number int
+	kind   string
+	share  runner.Rate
+	reason string // the primary analysis's verdict on the choice
+	// shifted is the largest test statistic plus its degrees of freedom
+	// over the rule's tests of the choice, about where the statistic sits
+	// in a resample; critical is that test's critical value at the rule's
+	// alpha; expected says shifted is beyond it, so that most resamples
+	// are expected to reject even though the data did not.
+	shifted, critical float64
+	expected          bool
+}
+
+// stabilityTurn finds the rule (not the last, which chooses) that
+// rejected model in the most resamples and reads its verdict on model in
+// the primary analysis; nil when no rule rejected it in any resample or
+// the rule is not a test whose chi-squared statistics the verdict records.
+func stabilityTurn(or *runner.OutcomeResult, st *runner.Stability, model string) *stabilityTurning {
+	var best *stabilityTurning
+	for i, ru := range st.Rules {
+		if i >= len(or.Rules) || or.Rules[i].Rule.Final() {
+			continue
+		}
+		for _, ms := range ru.Rejected {
+			if ms.Model == model && ms.Share.Count > 0 && (best == nil || ms.Share.Count > best.share.Count) {
+				best = &stabilityTurning{number: ru.Number, kind: ru.Kind, share: ms.Share}
+				for _, v := range or.Rules[i].Verdicts {
+					if v.Model == model && v.Kept {
+						best.reason = v.Reason
+						best.shifted, best.critical, best.expected = shiftedTest(v.Numbers)
+					}
+				}
+			}
+		}
+	}
+	if best == nil || best.reason == "" || best.critical == 0 {
+		return nil
+	}
+	return best
+}
+
+// shiftedTest reads the chi-squared tests a verdict records (chi2, df and
+// alpha; F tests, with a second df, are left out) and gives, for the one
+// whose statistic plus df lies furthest beyond its critical value, that
+// sum and the critical value; expected when the sum passes it.
+func shiftedTest(nums map[string]float64) (shifted, critical float64, expected bool) {
+	alpha, ok := nums["alpha"]
+	if !ok {
+		return 0, 0, false
+	}
+	var keys []string
+	for k := range nums {
+		if strings.HasPrefix(k, "chi2_against_") {
+			keys = append(keys, k)
+		}
+	}
+	sort.Strings(keys)
+	margin := math.Inf(-1)
+	for _, k := range keys {
+		target := strings.TrimPrefix(k, "chi2_against_")
+		df, ok := nums["df_against_"+target]
+		if _, f := nums["df2_against_"+target]; !ok || f || df <= 0 {
+			continue
+		}
+		crit := distuv.ChiSquared{K: df}.Quantile(1 - alpha)
+		if m := nums[k] + df - crit; m > margin {
+			margin, shifted, critical = m, nums[k]+df, crit
+		}
+	}
+	return shifted, critical, critical > 0 && shifted > critical
 }
 
 // stabilityCSV is table-stability-OUTCOME.csv: one row per share.

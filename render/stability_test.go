@@ -1,0 +1,63 @@
+package render
+
+import (
+	"strings"
+	"testing"
+
+	"ordplan/plan"
+	"ordplan/runner"
+)
+
+// TestStabilityReadingNearMargin: the plain reading of a share the
+// primary's choice got in few resamples names the test that turned it
+// down most often, with its p-value in the primary analysis, and reads
+// the low share as the bootstrap's lean when the statistic plus its
+// degrees of freedom passes the critical value (chi2(27) = 36.974, p =
+// 0.0956: 36.974 + 27 = 63.974 > 40.113, the 0.95 quantile of chi-squared
+// on 27 df in the usual printed tables); with a statistic far below it
+// (chi2(27) = 5.0, 5 + 27 < 40.113) or a rule that is no test, the
+// reading keeps calling the choice fragile.
+func TestStabilityReadingNearMargin(t *testing.T) {
+	const chosen, full = "cumulative/constrained/logit", "cumulative/nonparallel/logit"
+	build := func(kind string, nums map[string]float64) (*runner.OutcomeResult, *runner.Stability, *runner.StabilityModel) {
+		or := &runner.OutcomeResult{Rules: []*runner.RuleOutcome{
+			{Rule: plan.Rule{Kind: kind}, Verdicts: []runner.Verdict{{Model: chosen, Kept: true, Reason: "likelihood-ratio test against " + full + ": chi2(27) = 36.974, p = 0.0956 >= alpha 0.05", Numbers: nums}}},
+			{Rule: plan.Rule{Kind: plan.RulePreferSimpler}, Verdicts: []runner.Verdict{{Model: chosen, Kept: true}}},
+		}}
+		st := &runner.Stability{Resamples: 40, Models: []runner.StabilityModel{
+			{Model: chosen, Chosen: runner.RateOf(2, 40), Primary: true},
+			{Model: full, Chosen: runner.RateOf(38, 40)},
+		}, Rules: []runner.StabilityRule{
+			{Number: 1, Kind: kind, Rejected: []runner.ModelShare{{Model: chosen, Share: runner.RateOf(38, 40)}, {Model: full, Share: runner.RateOf(0, 40)}}},
+			{Number: 2, Kind: plan.RulePreferSimpler, Rejected: []runner.ModelShare{{Model: chosen, Share: runner.RateOf(0, 40)}, {Model: full, Share: runner.RateOf(2, 40)}}},
+		}}
+		return or, st, &st.Models[0]
+	}
+	test := func(chi2 float64) map[string]float64 {
+		return map[string]float64{"alpha": 0.05, "chi2_against_cumulative_nonparallel_logit": chi2, "df_against_cumulative_nonparallel_logit": 27, "p_against_cumulative_nonparallel_logit": 0.0956}
+	}
+
+	or, st, pm := build(plan.RuleRejectIfTestRejects, test(36.974))
+	got := stabilityReading(or, st, pm, st.Models[1])
+	for _, want := range []string{"chose it again in 2 of 40", "rule 1 (`reject_if_test_rejects`), in 38 of 40 resamples",
+		"chi2(27) = 36.974, p = 0.0956", "here about 63.974, against the critical value 40.113", "expected to reject the restriction in most resamples",
+		"near this rule's margin, not how often a new study would choose the same model"} {
+		if !strings.Contains(got, want) {
+			t.Errorf("near the margin: the reading lacks %q:\n%s", want, got)
+		}
+	}
+	if strings.Contains(got, "fragile") {
+		t.Errorf("near the margin: the reading still calls the choice fragile:\n%s", got)
+	}
+
+	for name, c := range map[string]struct {
+		kind string
+		nums map[string]float64
+	}{"far from the margin": {plan.RuleRejectIfTestRejects, test(5)}, "no test": {plan.RuleRejectIfSparse, map[string]float64{"per_parameter": 12}}} {
+		or, st, pm := build(c.kind, c.nums)
+		got := stabilityReading(or, st, pm, st.Models[1])
+		if !strings.Contains(got, "the choice is fragile") || strings.Contains(got, "margin") {
+			t.Errorf("%s: the reading should call the choice fragile and say nothing of a margin:\n%s", name, got)
+		}
+	}
+}
