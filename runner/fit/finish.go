@@ -106,7 +106,16 @@ func finish(src *source, m Model, ly *layout, st newtonState, opt Options) (*Res
 	}
 	// Phase 2: is the maximum finite, and was it reached?
 	info := negated(st.hess)
-	v, dir, rec := src.certify(r, ly, st, info)
+	v, dir, rec, higher := src.certify(r, ly, st, info)
+	if v == verdictDiverging && higher != nil && opt.restarts < maxRestarts {
+		// The iterations stopped where the log-likelihood is not the
+		// highest (a local maximum of a link whose log-likelihood is not
+		// concave), and the data have no direction of recession: the
+		// maximum is elsewhere, so the iterations carry on from the
+		// higher point a check found.
+		opt.restarts++
+		return finish(src, m, ly, newtonLoop(higher, opt.MaxIter, src.loglik), opt)
+	}
 	switch {
 	case v == verdictSeparated || v == verdictDiverging:
 		r.Separation = src.describeSeparation(m, ly, st.theta, dir, rec)
@@ -317,18 +326,35 @@ const (
 // it (scaled coordinates): the sign's, or the programme's when it alone
 // found one. A separation's verdict comes with the programme's direction
 // of recession (rec), which describeSeparation names.
-func (src *source) certify(r *Result, ly *layout, st newtonState, info []float64) (verdict, []float64, *recession) {
-	flagged, dir, suspect := src.divergenceSigns(r, ly, st, info)
+//
+// higher is, when the verdict is verdictDiverging and the programme found
+// no direction of recession, the point of highest log-likelihood the
+// checks evaluated if it lies above st.ll by more than rounding (nil
+// otherwise): the iterations then stopped short of the maximum, which
+// exists (programmeBounds), and finish carries them on from there.
+func (src *source) certify(r *Result, ly *layout, st newtonState, info []float64) (v verdict, dir []float64, rec *recession, higher []float64) {
+	probe := *src
+	best, bestLL := []float64(nil), st.ll+math.Max(1e-6, 1e-10*math.Abs(st.ll))
+	probe.loglik = func(theta []float64, order int) evalOut {
+		a := src.loglik(theta, order)
+		if !a.bad && a.ll > bestLL {
+			best, bestLL = slices.Clone(theta), a.ll
+		}
+		return a
+	}
+	flagged, dir, suspect := probe.divergenceSigns(r, ly, st, info)
 	found, rec := src.recessionDirection(r, ly, st.theta, st.ll, suspect || flagged)
 	switch {
 	case found == recessionFound:
-		return verdictSeparated, scaledDirection(rec.step, info), rec
+		return verdictSeparated, scaledDirection(rec.step, info), rec, nil
 	case !flagged:
-		return verdictFinite, dir, nil
+		return verdictFinite, dir, nil, nil
 	case found == recessionNone && programmeDecides(r.Model):
-		return verdictFlat, dir, nil
+		return verdictFlat, dir, nil, nil
+	case found == recessionNone && programmeBounds(r.Model):
+		return verdictDiverging, dir, nil, best
 	}
-	return verdictDiverging, dir, nil
+	return verdictDiverging, dir, nil, nil
 }
 
 // divergenceSigns looks for the signs that the log-likelihood keeps

@@ -128,6 +128,10 @@ type Options struct {
 	// a model without constrained predictors is then iterated by
 	// maximumLoop and finished without a covariance (finish).
 	maximumOnly bool
+	// restarts counts the times finish has carried the iterations on
+	// from a point of higher log-likelihood than the one they stopped at
+	// (at most maxRestarts).
+	restarts int
 }
 
 // Status of a fit.

@@ -78,6 +78,29 @@ func programmeDecides(m Model) bool {
 	return true
 }
 
+// programmeBounds reports whether the programme's finding no direction
+// proves that model m's log-likelihood has a maximum, concave or not: for
+// the cumulative and stage comparisons without constrained effects each
+// row's probability is at most F(L) or 1 - F(L) of every linear predictor
+// the inequalities name, so when no direction satisfies them all, every
+// direction moves some row's bound towards 0 at a rate bounded away from
+// 0 over the unit sphere, the log-likelihood falls without bound far from
+// any point uniformly, and its maximum is attained. That holds for the
+// Cauchy link too; it does not say the iterations reached that maximum
+// where the log-likelihood is not concave.
+func programmeBounds(m Model) bool {
+	for _, e := range m.Effects {
+		if e == Constrained {
+			return false
+		}
+	}
+	return m.Comparison == Cumulative || m.Comparison == Stage
+}
+
+// maxRestarts is how many times finish carries the iterations on from a
+// higher point the checks found (certify).
+const maxRestarts = 3
+
 // groupMove says how a constraint group's effects move along a ray (a
 // group of one predictor moves its J-1 slopes freely either way).
 type groupMove int
