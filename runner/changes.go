@@ -72,10 +72,11 @@ func ChangesFrom(prev *Decisions, prevRec *RunRecord, cur *Decisions, res *Resul
 		out = append(out, fmt.Sprintf("The plan changed (sha256 %.12s... -> %.12s...)%s.", prev.Plan.SHA256, cur.Plan.SHA256, keys))
 	}
 	var cols []OutcomeColumns
+	var canon json.RawMessage
 	if res != nil {
-		cols = res.DataColumns()
+		cols, canon = res.DataColumns(), res.Plan.Canonical()
 	}
-	out = append(out, dataChanges(prev, prevRec, cur, cols, planChanged)...)
+	out = append(out, dataChanges(prev, prevRec, cur, cols, canon, planChanged)...)
 	if dataChanged := prev.Data.SHA256 != cur.Data.SHA256; res != nil && prevRec != nil && prevRec.DataColumns != nil && (dataChanged || planChanged) {
 		out = append(out, sensitivityColumnChanges(prevRec, res, dataChanged)...)
 	}
@@ -173,7 +174,7 @@ func planKeys(was, now json.RawMessage) (keys []string, known bool) {
 // only the plan changed (it may read the same data otherwise: other
 // missing-value markers, another subset), and then say nothing when
 // they are the same.
-func dataChanges(prev *Decisions, prevRec *RunRecord, cur *Decisions, cols []OutcomeColumns, planChanged bool) []string {
+func dataChanges(prev *Decisions, prevRec *RunRecord, cur *Decisions, cols []OutcomeColumns, canon json.RawMessage, planChanged bool) []string {
 	dataChanged := prev.Data.SHA256 != cur.Data.SHA256
 	var out []string
 	if dataChanged {
@@ -200,6 +201,16 @@ func dataChanges(prev *Decisions, prevRec *RunRecord, cur *Decisions, cols []Out
 			out = append(out, "The earlier run did not record per-column fingerprints of its data (its run.json was written by an older ordplan), so which columns of the data changed cannot be said.")
 		}
 	default:
+		if subset := primarySubsetChange(prevRec.Plan.Canonical, canon); subset != "" {
+			// The plan's own subset changed: one line per outcome, as
+			// for a sensitivity analysis's subset.
+			for _, n := range cols {
+				if i := slices.IndexFunc(prevRec.DataColumns, func(o OutcomeColumns) bool { return o.Outcome == n.Outcome }); i >= 0 {
+					out = append(out, subsetLine(subset, prevRec.DataColumns[i], n, dataChanged)+".")
+				}
+			}
+			break
+		}
 		for _, c := range ColumnChanges(prevRec.DataColumns, cols) {
 			if dataChanged || !strings.Contains(c, noColumnChanged) && !strings.Contains(c, notComparedLead) {
 				out = append(out, c+".")

@@ -564,7 +564,28 @@ func sensitivityColumnChanges(prevRec *RunRecord, res *Result, dataChanged bool)
 func sensitivitySubsetChange(was, now json.RawMessage, name string) string {
 	a, aok := changedSubset(was, name)
 	b, bok := changedSubset(now, name)
-	if !aok || !bok || a == nil && b == nil {
+	if !aok || !bok {
+		return ""
+	}
+	return subsetKeyChanges(a, b)
+}
+
+// primarySubsetChange is sensitivitySubsetChange for the plan's own
+// subset (its top-level key subset).
+func primarySubsetChange(was, now json.RawMessage) string {
+	var p, q struct {
+		Subset json.RawMessage `json:"subset"`
+	}
+	if len(was) == 0 || len(now) == 0 || json.Unmarshal(was, &p) != nil || json.Unmarshal(now, &q) != nil {
+		return ""
+	}
+	return subsetKeyChanges(p.Subset, q.Subset)
+}
+
+// subsetKeyChanges is how subset a became subset b (nil: none), the keys
+// with both values, or "" when neither is set or they are the same.
+func subsetKeyChanges(a, b json.RawMessage) string {
+	if a == nil && b == nil {
 		return ""
 	}
 	wrap := func(v json.RawMessage) json.RawMessage {

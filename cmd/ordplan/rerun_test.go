@@ -333,6 +333,45 @@ func TestRerunSummarisesSensitivitySubset(t *testing.T) {
 	}
 }
 
+// The plan's own subset changed between two runs: --previous sums it up
+// in one line per outcome through the sensitivity analyses' summary
+// (subsetLine), with the rows used before and now counted here from the
+// rows written, not one line per column.
+func TestRerunSummarisesPrimarySubset(t *testing.T) {
+	dir := t.TempDir()
+	data := filepath.Join(dir, "d.csv")
+	p := filepath.Join(dir, "plan.yaml")
+	writeRows(t, data, rerunRows(nil))
+	upTo := func(age int) int {
+		n := 0
+		for i := range 240 {
+			if 20+(i*13)%50 <= age {
+				n++
+			}
+		}
+		return n
+	}
+	run := func(at, out, previous string) string {
+		t.Helper()
+		os.WriteFile(p, []byte(fmt.Sprintf(rerunPlan, "file: d.csv")+"subset: [{column: age, at_most: "+at+"}]\n"), 0o644)
+		args := []string{"run", p, "--out", filepath.Join(dir, out), "--quiet"}
+		if previous != "" {
+			args = append(args, "--previous", filepath.Join(dir, previous))
+		}
+		stdout, e, code := runCLI(args...)
+		if code != 0 {
+			t.Fatalf("exit %d: %s", code, e)
+		}
+		return stdout
+	}
+	run("60", "a", "")
+	stdout := run("45", "b", "a")
+	want := fmt.Sprintf("y: its subset changed (subset[0].at_most 60 -> 45): rows used %d -> %d, and all 3 columns it reads changed with them.\n", upTo(60), upTo(45))
+	if !strings.Contains(stdout, want) || strings.Contains(stdout, "y: column ") {
+		t.Errorf("want %q, and no line per column, in:\n%s", want, stdout)
+	}
+}
+
 // The plan changed between two runs: --previous names the key and both
 // values (from run.json's plan.canonical); a comment alone changes the
 // plan's hash but not its canonical form, which is said.
