@@ -388,11 +388,18 @@ func nonDefaultCorrection(c fit.ClusterCorrection) *fit.ClusterCorrection {
 type canonStability struct {
 	Resamples int    `json:"resamples"`
 	Seed      uint64 `json:"seed"`
+	// Draw is absent for the bootstrap, the default, so that plans
+	// written before the key keep their canonical form.
+	Draw string `json:"draw,omitempty"`
 }
 
 func (s *SelectionStability) canonical() *canonStability {
 	if s == nil {
 		return nil
 	}
-	return &canonStability{Resamples: s.Resamples, Seed: s.Seed}
+	c := &canonStability{Resamples: s.Resamples, Seed: s.Seed}
+	if s.Draw != StabilityBootstrap && s.Draw != "" {
+		c.Draw = s.Draw
+	}
+	return c
 }

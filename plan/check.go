@@ -286,4 +286,7 @@ func (d *decoder) checkStability(p *Plan) {
 	if p.SelectionStability != nil && p.Data.Imputed != nil {
 		d.errAt("selection_stability", "is not available with data.imputed: each bootstrap resample of the rows would have to be imputed again, which sets made elsewhere cannot be; remove selection_stability, or impute with the program (data.missing: impute, data.imputation), whose resamples are imputed anew")
 	}
+	if p.SelectionStability != nil && p.SelectionStability.Draw == StabilityChosenModel && p.Data.Missing == MissingImpute {
+		d.errAt("selection_stability.draw", "chosen_model is not available with data.missing: impute: the outcomes would be drawn from a model fitted to pooled imputed sets, at rows whose missing values are themselves imputed; use draw: bootstrap (each resample imputed anew), or data.missing: drop")
+	}
 }

@@ -365,7 +365,8 @@ func (d *decoder) decodeStability(n *yaml.Node) *SelectionStability {
 	if m == nil {
 		return nil
 	}
-	st := &SelectionStability{}
+	st := &SelectionStability{Draw: StabilityBootstrap}
+	m.word("draw", "way of drawing", stabilityDrawWords, &st.Draw)
 	if m.required("resamples") != nil {
 		if r, ok := m.wholeInRange(Spec.find("selection_stability.resamples")); ok {
 			st.Resamples = int(r)

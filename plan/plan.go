@@ -349,4 +349,17 @@ const (
 type SelectionStability struct {
 	Resamples int
 	Seed      uint64
+	// Draw is how each repetition's data are drawn: StabilityBootstrap
+	// (resamples of the rows used) or StabilityChosenModel (outcomes
+	// simulated from the primary analysis's chosen model as fitted, at
+	// the rows used).
+	Draw string
 }
+
+// The values of selection_stability.draw.
+const (
+	StabilityBootstrap   = "bootstrap"
+	StabilityChosenModel = "chosen_model"
+)
+
+var stabilityDrawWords = []string{StabilityBootstrap, StabilityChosenModel}

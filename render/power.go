@@ -2,6 +2,7 @@ package render
 
 import (
 	"fmt"
+	"ordplan/plan"
 	"slices"
 	"strconv"
 	"strings"
@@ -53,7 +54,9 @@ func PowerOutputs(pr *simulate.PowerResult, reg *lock.Status) (map[string][]byte
 		}
 		d.p("The plan's sensitivity analyses (%s) are not run in the replicates: every rate below is that of the primary analysis; `ordplan rehearse` runs them once on simulated data.", strings.Join(names, ", "))
 	}
-	if pr.StabilityNotRun {
+	if pr.StabilityNotRun && pr.StabilityDraw == plan.StabilityChosenModel {
+		d.p("The plan's `selection_stability` (draw: chosen_model: outcomes simulated from the chosen model at the rows used, to see how often the rules recover it) is not run in the replicates: a power study already repeats the whole procedure on data simulated from the assumptions, and how often each candidate model is chosen is in its table below; `ordplan run` (and `ordplan rehearse`) run it.")
+	} else if pr.StabilityNotRun {
 		d.p("The plan's `selection_stability` (bootstrap resamples of the data, to see how stable the model choice is) is not run in the replicates: a power study already repeats the whole procedure on new data sets, and how often each candidate model is chosen is in its table below; `ordplan run` (and `ordplan rehearse`) run it.")
 	}
 	if len(pr.Missing) > 0 {

@@ -10,6 +10,7 @@ import (
 	"gonum.org/v1/gonum/stat/distuv"
 
 	"ordplan/internal/words"
+	"ordplan/plan"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
 )
@@ -47,8 +48,22 @@ func writeStability(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		im := r.Plan.Data.Imputation
 		imputed = fmt.Sprintf(" The rows drawn are the rows as read, the incomplete ones among them, and each resample is imputed anew by chained equations with the plan's data.imputation settings (%d sets, %d iterations, the same imputation models), its imputation seed drawn from the resample's own stream: bootstrap, then impute, so that the shares carry the uncertainty of the imputation too; the fits of a resample's imputed sets are pooled by Rubin's rules and the rules read the pooled fits, as in the primary analysis.", im.Sets, im.Iterations)
 	}
-	d.p("The plan (selection_stability) asks how stable the choice the rules made is. The whole decision procedure, the same grid of candidates, the same tests and the same rules in order%s, was run again on %d bootstrap resamples of the data used here, drawn with seed %d: each resample draws, with replacement, as many units as the data have, %s.%s%s The terms' constants (centring means, scales, knots, polynomial bases) stay those of the primary analysis. Each resample's fits were made on this machine (not sent to queue workers), one fit at a time per resample, several resamples at once.",
-		stepwiseWords(r), st.Resamples, st.Seed, stabilityUnits(r, st), imputed, sampling)
+	one, many, where, head := stabilityNouns(st)
+	if simulatedDraw(st) && st.Primary == "" {
+		d.p("The plan (selection_stability, draw: chosen_model) asks how often the rules find the model the primary analysis chose when that model holds. The primary analysis chose no model, so there was no model to draw outcomes from, and the study was not run.")
+		return
+	}
+	if simulatedDraw(st) {
+		weights := ""
+		if r.Plan.Data.Weights != "" && !(r.Analysis != nil && r.Analysis.Errors.Sampling) {
+			weights = fmt.Sprintf(" A row of frequency weight w (%s) is w units, each drawn apart, so it becomes one row per category drawn, weighted by how many of its units drew it.", mdCode(r.Plan.Data.Weights))
+		}
+		d.p("The plan (selection_stability, draw: chosen_model) asks how often the rules find the model the primary analysis chose when that model holds. At the %d rows used here, each keeping its predictors (and its weight, offset and cluster, where the data have them), new outcomes were drawn %d times from %s with its estimates in the primary analysis (seed %d), and the whole decision procedure, the same grid of candidates, the same tests and the same rules in order%s, was run on each simulated set.%s The terms' constants (centring means, scales, knots, polynomial bases) stay those of the primary analysis. Each simulated set's fits were made on this machine (not sent to queue workers), one fit at a time per set, several sets at once.",
+			st.Units, st.Resamples, st.Primary, st.Seed, stepwiseWords(r), weights)
+	} else {
+		d.p("The plan (selection_stability) asks how stable the choice the rules made is. The whole decision procedure, the same grid of candidates, the same tests and the same rules in order%s, was run again on %d bootstrap resamples of the data used here, drawn with seed %d: each resample draws, with replacement, as many units as the data have, %s.%s%s The terms' constants (centring means, scales, knots, polynomial bases) stay those of the primary analysis. Each resample's fits were made on this machine (not sent to queue workers), one fit at a time per resample, several resamples at once.",
+			stepwiseWords(r), st.Resamples, st.Seed, stabilityUnits(r, st), imputed, sampling)
+	}
 
 	var rows [][]string
 	var primary *runner.StabilityModel
@@ -75,10 +90,10 @@ func writeStability(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	if st.Failed.Count > 0 {
 		rows = append(rows, []string{"the procedure failed", fmt.Sprintf("%d of %d", st.Failed.Count, st.Failed.Of), st.Failed.Text(""), ""})
 	}
-	d.captioned("Model chosen in the bootstrap resamples (share with its Monte Carlo standard error)").table([]string{"Model", "Resamples", "Share (MC se)", "Note"}, rows)
+	d.captioned("Model chosen in the "+where+" (share with its Monte Carlo standard error)").table([]string{"Model", head, "Share (MC se)", "Note"}, rows)
 	d.p("%s", stabilityReading(or, st, primary, top))
 	if len(st.Failures) > 0 {
-		d.p("In %d of %d resamples the procedure failed as a whole (the resample's data could not be fitted at all), counted apart from those where the rules chose nothing; the reasons met first: %s.", st.Failed.Count, st.Resamples, mdText(strings.Join(st.Failures, "; ")))
+		d.p("In %d of %d %s the procedure failed as a whole (the %s's data could not be fitted at all), counted apart from those where the rules chose nothing; the reasons met first: %s.", st.Failed.Count, st.Resamples, many, one, mdText(strings.Join(st.Failures, "; ")))
 	}
 
 	// Which rule rejected which model.
@@ -102,12 +117,12 @@ func writeStability(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			quiet = append(quiet, fmt.Sprintf("%d (%s)", ru.Number, mdCode(ru.Kind)))
 		}
 	}
-	d.p("Which rule drives the changes: how often each rule, in the resamples where it was reached, rejected each model (the last rule's \"not chosen\" are the models it passed over for another). A model a rule keeps in the primary analysis but rejects in many resamples is where the choice turns.")
+	d.p("Which rule drives the changes: how often each rule, in the %s where it was reached, rejected each model (the last rule's \"not chosen\" are the models it passed over for another). A model a rule keeps in the primary analysis but rejects in many %s is where the choice turns.", many, many)
 	if len(rows) > 0 {
-		d.captioned("Rejections by each rule over the bootstrap resamples").table([]string{"Rule", "Model", "Verdict", "Resamples", "Share (MC se)"}, rows)
+		d.captioned("Rejections by each rule over the "+where).table([]string{"Rule", "Model", "Verdict", head, "Share (MC se)"}, rows)
 	}
 	if len(quiet) > 0 {
-		d.p("Rule%s %s rejected no model in any resample.", plural(len(quiet)), words.AndList(quiet))
+		d.p("Rule%s %s rejected no model in any %s.", plural(len(quiet)), words.AndList(quiet), one)
 	}
 
 	if len(st.Hypotheses) > 0 {
@@ -117,7 +132,7 @@ func writeStability(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			iv := "(several restrictions in every chosen model that tested it)"
 			switch {
 			case h.Low != nil && h.Estimated < h.Tested:
-				iv = fmt.Sprintf("%s to %s (over the %d resample%s where it is a single restriction)", numfmt.Est(*h.Low), numfmt.Est(*h.High), h.Estimated, plural(h.Estimated))
+				iv = fmt.Sprintf("%s to %s (over the %d %s%s where it is a single restriction)", numfmt.Est(*h.Low), numfmt.Est(*h.High), h.Estimated, one, plural(h.Estimated))
 			case h.Low != nil:
 				iv = numfmt.Est(*h.Low) + " to " + numfmt.Est(*h.High)
 			case h.Tested == 0:
@@ -127,13 +142,34 @@ func writeStability(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		}
 		adj := ""
 		if m := r.Plan.Inference.Multiplicity; m != "" && m != "none" {
-			adj = fmt.Sprintf(" on the p-value adjusted for multiplicity (%s) over the outcomes of that resample, as the run decides", m)
+			adj = fmt.Sprintf(" on the p-value adjusted for multiplicity (%s) over the outcomes of that %s, as the run decides", m, one)
 		}
-		d.p("The plan's hypotheses in the model chosen in each resample: rejected when its p-value is below %s (1 minus the report's confidence level)%s; a resample whose chosen model lacks the hypothesis's parameters, or that chose nothing, does not test it and does not count as a rejection. The interval is the %s%% percentile interval of the estimate (left side minus right side) over the resamples that tested it, for a single restriction.", numfmt.Num(st.Alpha), adj, lv)
-		d.captioned("Hypotheses over the bootstrap resamples, each in the model chosen there").table([]string{"Hypothesis", "Tested in", "Rejected in", "Share rejected (MC se)", lv + "% percentile interval of the estimate"}, rows)
-		d.p("These shares measure how reproducible the plan's conclusion is when the whole procedure, the choice of model included, is repeated on data like these: they are not the power of the test (which would need data drawn from a stated truth; `ordplan power`), nor p-values, and the percentile intervals are not confidence intervals of the chosen model's parameters, whose meaning changes with the model chosen.")
+		d.p("The plan's hypotheses in the model chosen in each %s: rejected when its p-value is below %s (1 minus the report's confidence level)%s; a %s whose chosen model lacks the hypothesis's parameters, or that chose nothing, does not test it and does not count as a rejection. The interval is the %s%% percentile interval of the estimate (left side minus right side) over the %s that tested it, for a single restriction.", one, numfmt.Num(st.Alpha), adj, one, lv, many)
+		d.captioned("Hypotheses over the "+where+", each in the model chosen there").table([]string{"Hypothesis", "Tested in", "Rejected in", "Share rejected (MC se)", lv + "% percentile interval of the estimate"}, rows)
+		if simulatedDraw(st) {
+			d.p("These shares are how often each hypothesis is rejected, the choice of model included, when the chosen model holds with the primary analysis's estimates: for a hypothesis those estimates make false, a power at these estimates (not at a truth stated in advance, as `ordplan power` uses), and for one they make true, the rate of false rejections; not p-values, and the percentile intervals are not confidence intervals of the chosen model's parameters.")
+		} else {
+			d.p("These shares measure how reproducible the plan's conclusion is when the whole procedure, the choice of model included, is repeated on data like these: they are not the power of the test (which would need data drawn from a stated truth; `ordplan power`), nor p-values, and the percentile intervals are not confidence intervals of the chosen model's parameters, whose meaning changes with the model chosen.")
+		}
+	}
+	if simulatedDraw(st) {
+		d.p("Assumptions and limits of this study: the outcomes were drawn from the chosen model with the estimates of these data, so the shares describe what the rules do if that model, with those estimates, is true; they do not test whether it is, and a model the rules recover every time can still be wrong. The estimates carry the sampling error of these data, which the shares do not show; the Monte Carlo error in brackets is from %d simulated sets. Every restriction of the chosen model holds in each simulated set, so these shares have no lean towards the less constrained models, unlike bootstrap resamples (draw: bootstrap); the predictors, weights and clusters are those of these rows, not new ones.", st.Resamples)
+		return
 	}
 	d.p("Assumptions and limits of this study: it is a bootstrap of a selection procedure on the %s used, so every resample resembles these data, not a new sample from the population; the shares are estimates, with the Monte Carlo error in brackets from %d resamples and a sampling error from the data themselves that the brackets do not show. A resample repeats units, and a model that fits the data only roughly fits a resample more roughly still: a test of a restriction tends to give a larger statistic in a resample (on average about its value in the data plus its degrees of freedom), so tests reject restrictions more often in resamples than they would in new samples where the restriction holds, and the shares lean towards the less constrained models. A small share for the model the primary analysis chose means that data slightly different would have led the same rules to another model; when a test kept the choice with a statistic within about its degrees of freedom of the critical value, that lean alone makes the share small, and the share then tells how near the rule's margin the choice sits rather than how often a new study would repeat it. Either way the chosen model's intervals, which treat it as fixed in advance, leave that uncertainty out.", unitWord(st), st.Resamples)
+}
+
+// simulatedDraw says whether st's outcomes were drawn from the chosen
+// model (draw: chosen_model) rather than by bootstrap resampling.
+func simulatedDraw(st *runner.Stability) bool { return st.Draw == plan.StabilityChosenModel }
+
+// stabilityNouns names one repetition, several, and where the shares were
+// counted, for the section's sentences and captions.
+func stabilityNouns(st *runner.Stability) (one, many, where, head string) {
+	if simulatedDraw(st) {
+		return "simulated set", "simulated sets", "sets simulated from the chosen model", "Simulated sets"
+	}
+	return "resample", "resamples", "bootstrap resamples", "Resamples"
 }
 
 // unitWord names the resampled units in a sentence.
@@ -166,6 +202,9 @@ func stabilityReading(or *runner.OutcomeResult, st *runner.Stability, primary *r
 		return s
 	}
 	c := primary.Chosen
+	if simulatedDraw(st) {
+		return chosenModelReading(st, primary, top)
+	}
 	s := fmt.Sprintf("Plain reading: the primary analysis chose %s, and the same procedure chose it again in %d of %d resamples, a share of %s.", primary.Model, c.Count, c.Of, c.Text("MC se "))
 	turn := stabilityTurn(or, st, primary.Model)
 	switch {
@@ -181,6 +220,28 @@ func stabilityReading(or *runner.OutcomeResult, st *runner.Stability, primary *r
 	}
 	if st.Failed.Count > 0 {
 		s += fmt.Sprintf(" The share counts the %d resamples where the procedure failed as not repeating the choice.", st.Failed.Count)
+	}
+	if top.Model != primary.Model && top.Chosen.Count > c.Count {
+		s += fmt.Sprintf(" The model chosen most often was %s (%d of %d).", top.Model, top.Chosen.Count, st.Resamples)
+	}
+	return s
+}
+
+// chosenModelReading is the plain reading of the shares when the outcomes
+// were drawn from the chosen model: a rate of recovering it.
+func chosenModelReading(st *runner.Stability, primary *runner.StabilityModel, top runner.StabilityModel) string {
+	c := primary.Chosen
+	s := fmt.Sprintf("Plain reading: with outcomes drawn from %s as the primary analysis estimated it, the same procedure chose it in %d of %d simulated sets, a share of %s. This is how often these rules recover the model when it holds with these estimates, at these rows; it says nothing about whether it holds.", primary.Model, c.Count, c.Of, c.Text("MC se "))
+	switch {
+	case c.Rate < 0.5:
+		s += " Less than half: even if the chosen model were true, these rules would usually choose another with data like these, so the choice alone is weak evidence for it."
+	case c.Rate < 0.8:
+		s += " The rules find it more often than not, but far from always, even when it holds."
+	default:
+		s += " The rules find it reliably when it holds."
+	}
+	if st.Failed.Count > 0 {
+		s += fmt.Sprintf(" The share counts the %d simulated sets where the procedure failed as not finding it.", st.Failed.Count)
 	}
 	if top.Model != primary.Model && top.Chosen.Count > c.Count {
 		s += fmt.Sprintf(" The model chosen most often was %s (%d of %d).", top.Model, top.Chosen.Count, st.Resamples)
@@ -302,6 +363,12 @@ func stabilityMethods(r *runner.Result, or *runner.OutcomeResult) string {
 	st := or.Stability
 	if st == nil {
 		return ""
+	}
+	if simulatedDraw(st) && st.Primary == "" {
+		return ""
+	}
+	if simulatedDraw(st) {
+		return fmt.Sprintf("How often the decision procedure recovers the chosen model was assessed, as the plan fixed in advance, by drawing new outcomes %d times from %s with its estimates at the %d rows used (predictors, weights, offsets and clusters kept; seed %d), repeating the whole decision procedure (grid, tests and rules, in order) on each simulated set with the terms' constants kept from the primary analysis, and reporting how often each model was chosen (with its Monte Carlo standard error), how often each rule rejected each model and how often each hypothesis was rejected in the model chosen there.", st.Resamples, st.Primary, st.Units, st.Seed)
 	}
 	anew := ""
 	if st.Imputed {

@@ -13,6 +13,7 @@ import (
 
 	"ordplan/plan"
 	"ordplan/runner/data"
+	"ordplan/runner/fit"
 )
 
 // Stability is selection_stability for one outcome: the whole decision
@@ -56,6 +57,10 @@ type Stability struct {
 	Imputed bool `json:"imputed_anew,omitempty"`
 	// Level is the coverage of the percentile intervals (the report's).
 	Level float64 `json:"interval_level,omitempty"`
+	// Draw is plan.StabilityChosenModel when each repetition's outcomes
+	// were simulated from the primary analysis's chosen model at the rows
+	// used ("" for bootstrap resamples, the default).
+	Draw string `json:"draw,omitempty"`
 }
 
 // StabilityModel is how often one candidate was chosen.
@@ -332,7 +337,10 @@ func resamplePasses(an *Analysis, res *Result, r int, seed uint64) []stabilityPa
 	sub := &Result{Plan: res.Plan, Analysis: an}
 	for oi, or := range res.Outcomes {
 		resample := resampleOutcome
-		if imputesResamples(or) {
+		switch {
+		case res.Plan.SelectionStability.Draw == plan.StabilityChosenModel:
+			resample = simulatedOutcome
+		case imputesResamples(or):
 			resample = resampleImputedOutcome
 		}
 		ror, err := resample(an, an.Outcomes[oi], or, resampleRNG(seed, oi, r))
@@ -395,7 +403,96 @@ func resampleOutcome(an *Analysis, rd Reading, primary *OutcomeResult, rng *rand
 			or, failed = nil, fmt.Sprintf("internal error: %v (please report it with the command line that caused it)", e)
 		}
 	}()
-	ds := Resample(primary.Data, rng)
+	return decideDrawn(an, rd, primary, Resample(primary.Data, rng))
+}
+
+// simulatedOutcome draws one set of outcomes from the primary analysis's
+// chosen model at its rows (SimulateChosen) and runs the decision
+// procedure and the hypotheses on it, as resampleOutcome does.
+func simulatedOutcome(an *Analysis, rd Reading, primary *OutcomeResult, rng *rand.Rand) (or *OutcomeResult, failed string) {
+	defer func() {
+		if e := recover(); e != nil {
+			or, failed = nil, fmt.Sprintf("internal error: %v (please report it with the command line that caused it)", e)
+		}
+	}()
+	ds, err := SimulateChosen(primary, rng)
+	if err != nil {
+		return nil, err.Error()
+	}
+	return decideDrawn(an, rd, primary, ds)
+}
+
+// SimulateChosen draws new outcomes at the rows the primary analysis used
+// from the model it chose, with that model's estimates: each row keeps its
+// predictors, offset, cluster and sampling weight and gets a category drawn
+// from the model's probabilities there (fit.DrawCategory, as every
+// simulation of the program); a row of frequency weight w is w units, each
+// drawn apart, so that it becomes one row per category drawn, weighted by
+// how many of its units drew it (in category order, the rows in the order
+// of the data).
+func SimulateChosen(primary *OutcomeResult, rng *rand.Rand) (*data.Dataset, error) {
+	if primary.Chosen == nil || primary.Chosen.Result == nil {
+		return nil, fmt.Errorf("the primary analysis chose no model, so there is no model to draw outcomes from")
+	}
+	ds := primary.Data
+	J := len(ds.Categories)
+	P, err := primary.Chosen.Result.Probabilities(primary.FitData.X, primary.FitData.Offset)
+	if err != nil {
+		return nil, fmt.Errorf("the probabilities of %s at the rows used: %v", primary.Chosen.ID, err)
+	}
+	freq := ds.Weights != nil && !ds.Sampling
+	out := *ds
+	out.Y, out.X, out.Lines, out.Weights, out.Offset, out.Cluster = nil, nil, nil, nil, nil, nil
+	out.Counts = make([]float64, J)
+	out.Incomplete = 0
+	add := func(i, y int, w float64) {
+		out.Y = append(out.Y, y)
+		out.X = append(out.X, ds.X[i*ds.K:(i+1)*ds.K]...)
+		out.Lines = append(out.Lines, ds.Lines[i])
+		if ds.Weights != nil {
+			out.Weights = append(out.Weights, w)
+		}
+		if ds.Offset != nil {
+			out.Offset = append(out.Offset, ds.Offset[i])
+		}
+		if ds.Cluster != nil {
+			out.Cluster = append(out.Cluster, ds.Cluster[i])
+		}
+		out.Counts[y] += w
+	}
+	counts := make([]int, J)
+	for i := range ds.N {
+		p := P[i*J : (i+1)*J]
+		if slices.ContainsFunc(p, func(v float64) bool { return !(v >= 0) }) {
+			return nil, fmt.Errorf("%s gives a negative probability at data line %d, so no outcome can be drawn there", primary.Chosen.ID, ds.Lines[i])
+		}
+		if !freq {
+			w := 1.0
+			if ds.Weights != nil {
+				w = ds.Weights[i]
+			}
+			add(i, fit.DrawCategory(p, rng.Float64()), w)
+			continue
+		}
+		clear(counts)
+		for range int(math.Round(ds.Weights[i])) {
+			counts[fit.DrawCategory(p, rng.Float64())]++
+		}
+		for y, c := range counts {
+			if c > 0 {
+				add(i, y, float64(c))
+			}
+		}
+	}
+	out.N = len(out.Y)
+	return &out, nil
+}
+
+// decideDrawn runs the decision procedure and the hypotheses on a data
+// set drawn from the primary analysis's rows, with its design (the
+// constants frozen there). A non-empty reason says the procedure failed
+// entirely.
+func decideDrawn(an *Analysis, rd Reading, primary *OutcomeResult, ds *data.Dataset) (or *OutcomeResult, failed string) {
 	fd, err := frozenData(primary.Design, ds)
 	if err != nil {
 		return nil, err.Error()
@@ -461,6 +558,9 @@ func summarizeStability(an *Analysis, or *OutcomeResult, ps []stabilityPass, st 
 	R := len(ps)
 	unit, units := resampleUnit(resampled(or))
 	s := &Stability{Imputed: imputesResamples(or), Resamples: R, Seed: st.Seed, Unit: unit, Units: units, Alpha: 1 - an.Level, Level: an.Level}
+	if st.Draw == plan.StabilityChosenModel {
+		s.Draw, s.Unit, s.Units = st.Draw, UnitRows, or.Data.N
+	}
 	if or.Chosen != nil {
 		s.Primary = or.Chosen.ID
 	}

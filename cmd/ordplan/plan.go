@@ -143,7 +143,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	opt := runner.Options{Workers: *workers}
 	if !*quiet {
 		pr := lock.progress(stderr)
-		opt.Progress, opt.Resampled = pr, pr.Resampled
+		opt.Progress, opt.Resampled = pr, pr.resampled(p)
 	}
 	var queueLog io.Writer
 	if !*quiet {

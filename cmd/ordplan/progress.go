@@ -3,6 +3,7 @@ package main
 import (
 	"fmt"
 	"io"
+	"ordplan/plan"
 	"os"
 	"strings"
 	"sync"
@@ -60,10 +61,15 @@ func (p *progress) Replicated(n, done, total int) {
 	p.step(fmt.Sprintf("n = %d", n), "replicates", done, total)
 }
 
-// Resampled reports selection_stability's bootstrap resamples finished
-// so far (runner.Options.Resampled).
-func (p *progress) Resampled(done, total int) {
-	p.step("selection stability", "bootstrap resamples", done, total)
+// resampled reports selection_stability's repetitions finished so far
+// (runner.Options.Resampled): bootstrap resamples, or sets simulated from
+// the chosen model (draw: chosen_model).
+func (p *progress) resampled(pl *plan.Plan) func(done, total int) {
+	what := "bootstrap resamples"
+	if pl.SelectionStability != nil && pl.SelectionStability.Draw == plan.StabilityChosenModel {
+		what = "sets simulated from the chosen model"
+	}
+	return func(done, total int) { p.step("selection stability", what, done, total) }
 }
 
 // Imputed implements runner.ImputationProgress: the imputed sets of an

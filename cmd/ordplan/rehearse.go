@@ -104,7 +104,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	opt := runner.Options{Workers: *workers}
 	if !*quiet {
 		pr := olock.progress(stderr)
-		opt.Progress, opt.Resampled = pr, pr.Resampled
+		opt.Progress, opt.Resampled = pr, pr.resampled(&q)
 	}
 	res, err := runner.Run(&q, opt)
 	if err != nil {

@@ -439,3 +439,20 @@ func TestSelectionStabilityIsRegistered(t *testing.T) {
 		t.Error("a plan without selection_stability writes it in its canonical form")
 	}
 }
+
+// TestStabilityDrawIsRegistered: selection_stability.draw is part of the
+// frozen form: chosen_model after freezing the bootstrap is a change that
+// needs a reason, while draw: bootstrap written out is the default and
+// keeps the canonical bytes of a plan frozen before the key existed.
+func TestStabilityDrawIsRegistered(t *testing.T) {
+	withStability := basePlan + "selection_stability: {resamples: 200, seed: 5}\n"
+	p, _ := setupFrom(t, withStability, strings.Replace(withStability, "seed: 5}", "seed: 5, draw: chosen_model}", 1))
+	st, err := Check(p, false)
+	if err == nil || len(st.Changes) != 1 || st.Changes[0].Path != "selection_stability.draw" {
+		t.Fatalf("draw changed: %v %+v", err, st.Changes)
+	}
+	p, _ = setupFrom(t, withStability, strings.Replace(withStability, "seed: 5}", "seed: 5, draw: bootstrap}", 1))
+	if st, err := Check(p, false); err != nil || st.State != StateMatches {
+		t.Fatalf("draw: bootstrap written out: %v %+v", err, st)
+	}
+}

@@ -409,6 +409,21 @@ func mulZero(a, b float64) float64 {
 	return a * b
 }
 
+// DrawCategory is the category a uniform draw u (0 <= u < 1) falls in
+// under the category probabilities p: the first whose cumulative
+// probability passes u, the last taking whatever the others leave. Every
+// outcome the program simulates is drawn this way.
+func DrawCategory(p []float64, u float64) int {
+	acc := 0.0
+	for j := 0; j < len(p)-1; j++ {
+		acc += p[j]
+		if u < acc {
+			return j
+		}
+	}
+	return len(p) - 1
+}
+
 // CategoryProbabilities fills p (length J) with the category probabilities
 // of comparison c (backward: the stage comparison from the top category)
 // and link l at the J-1 linear predictors L, as a fit computes them.

@@ -180,8 +180,10 @@ type PowerResult struct {
 	// replicates do not run (their power is that of the primary analysis).
 	SensitivityNotRun []string `json:"sensitivity_not_run,omitempty"`
 	// StabilityNotRun is set when the plan asks for selection_stability,
-	// whose bootstrap resamples the replicates do not run.
+	// whose bootstrap resamples the replicates do not run; StabilityDraw
+	// is its draw when that is chosen_model ("" for the bootstrap).
 	StabilityNotRun bool   `json:"selection_stability_not_run,omitempty"`
+	StabilityDraw   string `json:"selection_stability_draw,omitempty"`
 	Version         string `json:"version"`
 }
 
@@ -250,6 +252,9 @@ func Power(p *plan.Plan, opt PowerOptions) (*PowerResult, error) {
 		res.SensitivityNotRun = append(res.SensitivityNotRun, sa.Name)
 	}
 	res.StabilityNotRun = p.SelectionStability != nil
+	if res.StabilityNotRun && p.SelectionStability.Draw == plan.StabilityChosenModel {
+		res.StabilityDraw = p.SelectionStability.Draw
+	}
 	res.Missing = sim.MissingRecord(nil, 0)
 	res.Weights = sim.WeightsRecord()
 	res.Truncated = sim.TruncationRecord(nil, 0)

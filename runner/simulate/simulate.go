@@ -1221,14 +1221,7 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) (Written, error
 				cells = append(cells, "")
 				continue
 			}
-			y, acc := len(c.p)-1, 0.0
-			for j := 0; j < len(c.p)-1; j++ {
-				acc += c.p[j]
-				if u < acc {
-					y = j
-					break
-				}
-			}
+			y := fit.DrawCategory(c.p, u)
 			ys[oi] = y
 			cells = append(cells, csvCell(o.Categories[y]))
 		}
