@@ -280,6 +280,15 @@ func catalogueData(t *testing.T, dir string) {
 2,4.952115184919945,1.0804790120940924,0.8332519231845916
 `,
 	}
+	// Simulated by us (runner/fit's TestCauchyHeavyRowFinite): 120 rows,
+	// one of them weighted 1e6, or 1e7 in another draw (M23, M24).
+	for name, from := range map[string]string{"cauchyheavy.csv": "cauchy_heavy_row.csv", "cauchyflat.csv": "cauchy_heavy_row_flat.csv"} {
+		b, err := os.ReadFile(filepath.Join("..", "..", "runner", "fit", "testdata", from))
+		if err != nil {
+			t.Fatal(err)
+		}
+		files[name] = string(b)
+	}
 	for name, s := range files {
 		if err := os.WriteFile(filepath.Join(dir, name), []byte(s), 0o644); err != nil {
 			t.Fatal(err)
@@ -1817,6 +1826,22 @@ func catalogue(dir string) (items []badInput) {
 				"ordplan fit: stage/nonparallel/probit has no reliable estimates (flat_maximum: "},
 			check: func(t *testing.T, dir, out, errs string) {
 				if strings.Contains(out+errs, "keeps rising as") || strings.Contains(out+errs, "no finite maximum") {
+					t.Errorf("a finite maximum is said to have none:\n%s", out)
+				}
+			}},
+		{id: "M23", name: "Cauchy link, one row weighted 1e6 among weights of 1", args: fitArgs(d("cauchyheavy.csv"), "--predictors", "x1,x2,x3", "--weights", "w", "--link", "cauchy"), code: 0,
+			want: []string{"Status           ok: converged", "Log-likelihood   -729.971514"},
+			check: func(t *testing.T, dir, out, errs string) {
+				if strings.Contains(out+errs, "no finite maximum likelihood estimate") {
+					t.Errorf("a finite maximum is said to have none:\n%s", out)
+				}
+			}},
+		{id: "M24", name: "Cauchy link, one row weighted 1e7: a finite but flat maximum", args: fitArgs(d("cauchyflat.csv"), "--predictors", "x1,x2,x3", "--weights", "w", "--link", "cauchy"), code: 1,
+			want: []string{"flat_maximum", "the maximum likelihood estimate is finite: the data admit no direction along which the log-likelihood keeps rising",
+				"(with this link it is not concave: the point reached is a local maximum, not proved the highest)", "nearly flat", "is the highest found",
+				"ordplan fit: cumulative/parallel/cauchy has no reliable estimates (flat_maximum: "},
+			check: func(t *testing.T, dir, out, errs string) {
+				if strings.Contains(out+errs, "no finite maximum likelihood estimate") {
 					t.Errorf("a finite maximum is said to have none:\n%s", out)
 				}
 			}},

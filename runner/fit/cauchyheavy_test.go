@@ -47,7 +47,7 @@ func readHeavyRow(t *testing.T, copies int) *Data {
 // TestCauchyHeavyRowFinite: with the Cauchy link, one row weighted 1e6
 // among rows of weight 1 has a finite maximum (the separation programme
 // finds no direction of recession, and for the cumulative comparison that
-// bounds the log-likelihood, programmeBounds); Newton from the usual start
+// proves a maximum, concave or not: programmeDecides); Newton from the usual start
 // stopped at a local maximum (log-likelihood -846.480) beside a much
 // higher point, which the checks once read as no finite maximum. The fit
 // must reach a stationary point above it, and equal the fit of the data

@@ -107,12 +107,11 @@ func finish(src *source, m Model, ly *layout, st newtonState, opt Options) (*Res
 	// Phase 2: is the maximum finite, and was it reached?
 	info := negated(st.hess)
 	v, dir, rec, higher := src.certify(r, ly, st, info)
-	if v == verdictDiverging && higher != nil && opt.restarts < maxRestarts {
-		// The iterations stopped where the log-likelihood is not the
-		// highest (a local maximum of a link whose log-likelihood is not
-		// concave), and the data have no direction of recession: the
-		// maximum is elsewhere, so the iterations carry on from the
-		// higher point a check found.
+	if higher != nil && opt.restarts < maxRestarts {
+		// The iterations stopped at a local maximum (the log-likelihood
+		// is not concave) beside a higher point, and the data have no
+		// direction of recession, so the maximum exists: the iterations
+		// carry on from the higher point a check found.
 		opt.restarts++
 		return finish(src, m, ly, newtonLoop(higher, opt.MaxIter, src.loglik), opt)
 	}
@@ -123,7 +122,7 @@ func finish(src *source, m Model, ly *layout, st newtonState, opt Options) (*Res
 	case !st.converged:
 		msg := fmt.Sprintf("Newton-Raphson stopped after %d iterations: %s (max |score| %.3g)", st.iters, st.reason, r.MaxAbsScore)
 		if v == verdictFlat {
-			msg += "; " + finiteMaximumReason
+			msg += "; " + finiteMaximumReason(m)
 		}
 		return r.fail(StatusNotConverged, msg), nil
 	}
@@ -157,9 +156,14 @@ func finish(src *source, m Model, ly *layout, st newtonState, opt Options) (*Res
 	return r, nil
 }
 
-// finiteMaximumReason says why a maximum is known to be finite although
-// the log-likelihood looked as if it kept rising.
-const finiteMaximumReason = "the maximum likelihood estimate is finite: the log-likelihood is concave and the data admit no direction along which it keeps rising (a linear programme over the distinct rows finds none)"
+// finiteMaximumReason says why a maximum of model m is known to be
+// finite although the checks saw signs of divergence.
+func finiteMaximumReason(m Model) string {
+	if logConcave(m) {
+		return "the maximum likelihood estimate is finite: the log-likelihood is concave and the data admit no direction along which it keeps rising (a linear programme over the distinct rows finds none)"
+	}
+	return "the maximum likelihood estimate is finite: the data admit no direction along which the log-likelihood keeps rising (a linear programme over the distinct rows finds none), so it falls without bound far from any point (with this link it is not concave: the point reached is a local maximum, not proved the highest)"
+}
 
 // flatness names the parameters, predictors and category boundaries
 // along the direction vec (scaled coordinates) in which a finite maximum
@@ -182,7 +186,7 @@ func (src *source) flatness(ly *layout, vec []float64) *Flatness {
 func (r *Result) settleFlat(f *Flatness) {
 	r.Status, r.Flat = StatusFlatMaximum, f
 	var b strings.Builder
-	b.WriteString(finiteMaximumReason)
+	b.WriteString(finiteMaximumReason(r.Model))
 	b.WriteString(", but it is nearly flat: the log-likelihood barely changes far along a direction of the parameters")
 	if len(f.Parameters) > 0 {
 		fmt.Fprintf(&b, " (%s)", strings.Join(f.Parameters, ", "))
@@ -194,7 +198,11 @@ func (r *Result) settleFlat(f *Flatness) {
 	if len(f.Boundaries) > 0 {
 		fmt.Fprintf(&b, "; category boundaries: %s", strings.Join(f.Boundaries, ", "))
 	}
-	fmt.Fprintf(&b, "; the log-likelihood %.6f is the maximum [information condition %.2g]", r.LogLik, r.Condition)
+	reached := "is the maximum"
+	if !logConcave(r.Model) {
+		reached = "is the highest found"
+	}
+	fmt.Fprintf(&b, "; the log-likelihood %.6f %s [information condition %.2g]", r.LogLik, reached, r.Condition)
 	if r.NegativeRows > 0 {
 		fmt.Fprintf(&b, "; %d of %d rows have a negative predicted category probability", r.NegativeRows, r.NRows)
 	}
@@ -327,11 +335,11 @@ const (
 // found one. A separation's verdict comes with the programme's direction
 // of recession (rec), which describeSeparation names.
 //
-// higher is, when the verdict is verdictDiverging and the programme found
-// no direction of recession, the point of highest log-likelihood the
-// checks evaluated if it lies above st.ll by more than rounding (nil
-// otherwise): the iterations then stopped short of the maximum, which
-// exists (programmeBounds), and finish carries them on from there.
+// higher is, when the verdict is verdictFlat, the point of highest
+// log-likelihood the checks evaluated if it lies above st.ll by more than
+// rounding (nil otherwise): the iterations then stopped at a local
+// maximum of a log-likelihood that is not concave, short of the maximum
+// the programme proves exists, and finish carries them on from there.
 func (src *source) certify(r *Result, ly *layout, st newtonState, info []float64) (v verdict, dir []float64, rec *recession, higher []float64) {
 	probe := *src
 	best, bestLL := []float64(nil), st.ll+math.Max(1e-6, 1e-10*math.Abs(st.ll))
@@ -350,9 +358,7 @@ func (src *source) certify(r *Result, ly *layout, st newtonState, info []float64
 	case !flagged:
 		return verdictFinite, dir, nil, nil
 	case found == recessionNone && programmeDecides(r.Model):
-		return verdictFlat, dir, nil, nil
-	case found == recessionNone && programmeBounds(r.Model):
-		return verdictDiverging, dir, nil, best
+		return verdictFlat, dir, nil, best
 	}
 	return verdictDiverging, dir, nil, nil
 }

@@ -49,57 +49,45 @@ const (
 )
 
 // programmeDecides reports whether the programme's finding no direction
-// proves the maximum finite for model m: its log-likelihood is concave in
-// parameters that enter the linear predictors linearly, and the
-// inequalities are then exactly its directions of recession, so with none
-// its level sets are bounded and the maximum is attained. That holds for
-// the cumulative comparison with a link of log-concave density, log(F(L_c)
-// - F(L_{c-1})) being concave where positive (logit, probit, cloglog,
-// loglog); for the stage comparisons with a link whose F and 1 - F are
-// both log-concave (the same four; each stage is a binary fit); and for
-// the adjacent comparison with the logit link (a multinomial logit with
-// linear constraints). It does not hold for the Cauchy link (neither F
-// nor its density is log-concave), for the adjacent comparison with
-// another link (its conditions are sufficient for a direction, not
-// necessary), nor for constrained effects (phi_m g_k is not linear, and
-// only rays with phi or g held are tried).
+// proves that model m's log-likelihood has a finite maximum. For the
+// cumulative and stage comparisons without constrained effects, whatever
+// the link, each row's probability is at most F(L) or 1 - F(L) of every
+// linear predictor L its inequalities name (cumulative: F(L_c) and
+// 1 - F(L_{c-1}); stage: each factor of the product): with no direction
+// satisfying them all, every direction moves some row's bound towards 0
+// at a rate bounded away from 0 over the unit sphere, so the
+// log-likelihood falls without bound far from any point, uniformly, and
+// its maximum is attained. For the logit, probit, cloglog and loglog
+// links the log-likelihood is also concave (log-concave densities, and
+// F and 1 - F log-concave for each stage), so a stationary point is that
+// maximum; with the Cauchy link it is not concave, and a stationary point
+// may be a local maximum only (logConcave). For the adjacent comparison
+// the inequalities are exactly the directions of recession with the
+// logit link alone (a multinomial logit with linear constraints; with
+// another link they are sufficient for a direction, not necessary), and
+// for constrained effects phi_m g_k is not linear and only rays with phi
+// or g held are tried.
 func programmeDecides(m Model) bool {
 	for _, e := range m.Effects {
 		if e == Constrained {
 			return false
 		}
 	}
-	switch {
-	case m.Link == Cauchy:
-		return false
-	case m.Comparison == Adjacent:
+	if m.Comparison == Adjacent {
 		return m.Link == Logit
 	}
 	return true
 }
 
-// programmeBounds reports whether the programme's finding no direction
-// proves that model m's log-likelihood has a maximum, concave or not: for
-// the cumulative and stage comparisons without constrained effects each
-// row's probability is at most F(L) or 1 - F(L) of every linear predictor
-// the inequalities name, so when no direction satisfies them all, every
-// direction moves some row's bound towards 0 at a rate bounded away from
-// 0 over the unit sphere, the log-likelihood falls without bound far from
-// any point uniformly, and its maximum is attained. That holds for the
-// Cauchy link too; it does not say the iterations reached that maximum
-// where the log-likelihood is not concave.
-func programmeBounds(m Model) bool {
-	for _, e := range m.Effects {
-		if e == Constrained {
-			return false
-		}
-	}
-	return m.Comparison == Cumulative || m.Comparison == Stage
-}
+// logConcave reports whether model m's log-likelihood is concave in the
+// parameters that enter its linear predictors linearly, so that a
+// stationary point is its maximum: every link but the Cauchy.
+func logConcave(m Model) bool { return m.Link != Cauchy }
 
 // maxRestarts is how many times finish carries the iterations on from a
-// higher point the checks found (certify).
-const maxRestarts = 3
+// higher point the checks found (certify): a Cauchy fit with one row
+// weighted 1e5 among rows of weight 1 climbed through four local maxima.
+const maxRestarts = 20
 
 // groupMove says how a constraint group's effects move along a ray (a
 // group of one predictor moves its J-1 slopes freely either way).
