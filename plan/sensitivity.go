@@ -531,6 +531,16 @@ func (s Sensitivity) OnData(p *Plan) *Plan {
 	sp.Data.File, sp.Data.Path = p.Data.File, p.Data.Path
 	sp.Data.Parts, sp.Data.PartFiles, sp.Data.PartPaths = p.Data.Parts, p.Data.PartFiles, p.Data.PartPaths
 	sp.Data.Written = p.Data.Written
+	// A subset the analysis changes is named at its change, so that
+	// what the data say of it (no row kept, a value no row holds) names
+	// sensitivity[1].change.subset[0], as a problem the plan's checks
+	// find there does (InChange).
+	sp.Subset = slices.Clone(sp.Subset)
+	for i := range sp.Subset {
+		if k, ok := s.ChangeKey(sp.Subset[i].Key); ok {
+			sp.Subset[i].Key = k
+		}
+	}
 	return &sp
 }
 

@@ -990,7 +990,7 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`P58.yaml:4:12: data.cluster: with sensitivity analysis "sand" (sensitivity[0], line 17) applied: the cluster column is used only with covariance: clustered (covariance is "sandwich"); set covariance: clustered or remove data.cluster (for this analysis alone: give data.cluster in its change, null to remove it)`}},
 		{id: "P59", name: "a sensitivity analysis the data refuse", args: []string{"check"}, code: 1,
 			plan: goodPlan + "sensitivity:\n  - name: none_left\n    why: w\n    change:\n      subset:\n        - {column: c, greater_than: 5}\n",
-			want: []string{`P59.yaml: sensitivity analysis "none_left" (sensitivity[0], line 15): d.csv: column "c": the subset keeps no rows: all 120 data rows fail its conditions (outside the subset c > 5: 120)`},
+			want: []string{`P59.yaml: sensitivity analysis "none_left" (sensitivity[0], line 15): d.csv: column "c": the subset keeps no rows: all 120 data rows fail its conditions (outside the subset c > 5: 120) (plan P59.yaml, outcome "y", plan key sensitivity[0].change.subset[0])`},
 			check: func(t *testing.T, dir, out, errs string) {
 				// run writes the primary analysis's outputs, says the
 				// analysis could not be run (stdout, stderr, report) and
@@ -999,7 +999,7 @@ func catalogue(dir string) (items []badInput) {
 				stdout, stderr, code := runCLI("run", filepath.Join(dir, "P59.yaml"), "--out", o, "--quiet")
 				rep, _ := os.ReadFile(filepath.Join(o, "report.md"))
 				if code != 3 || !strings.Contains(stdout, "sensitivity analysis none_left: could not be run") ||
-					!strings.Contains(stderr, `warning: `+filepath.Join(dir, "P59.yaml")+`: sensitivity analysis "none_left" (sensitivity[0], line 15) could not be run: d.csv: column "c": the subset keeps no rows: all 120 data rows fail its conditions (outside the subset c > 5: 120) (plan P59.yaml, outcome "y", plan key subset[0])`) ||
+					!strings.Contains(stderr, `warning: `+filepath.Join(dir, "P59.yaml")+`: sensitivity analysis "none_left" (sensitivity[0], line 15) could not be run: d.csv: column "c": the subset keeps no rows: all 120 data rows fail its conditions (outside the subset c > 5: 120) (plan P59.yaml, outcome "y", plan key sensitivity[0].change.subset[0])`) ||
 					!strings.Contains(string(rep), "**The sensitivity analysis none_left could not be run:** d.csv: column \"c\": the subset keeps no rows") {
 					t.Errorf("run: exit %d\n%s\n%s", code, stdout, stderr)
 				}
