@@ -218,13 +218,7 @@ func stabilityReading(or *runner.OutcomeResult, st *runner.Stability, primary *r
 	default:
 		s += " The choice is stable on data like these."
 	}
-	if st.Failed.Count > 0 {
-		s += fmt.Sprintf(" The share counts the %d resamples where the procedure failed as not repeating the choice.", st.Failed.Count)
-	}
-	if top.Model != primary.Model && top.Chosen.Count > c.Count {
-		s += fmt.Sprintf(" The model chosen most often was %s (%d of %d).", top.Model, top.Chosen.Count, st.Resamples)
-	}
-	return s
+	return s + readingTail(st, primary, top, "resamples", "not repeating the choice")
 }
 
 // chosenModelReading is the plain reading of the shares when the outcomes
@@ -240,10 +234,18 @@ func chosenModelReading(st *runner.Stability, primary *runner.StabilityModel, to
 	default:
 		s += " The rules find it reliably when it holds."
 	}
+	return s + readingTail(st, primary, top, "simulated sets", "not finding it")
+}
+
+// readingTail ends a plain reading: the repetitions that failed, counted
+// as missing the choice (as what), and the model chosen most often when
+// it is another.
+func readingTail(st *runner.Stability, primary *runner.StabilityModel, top runner.StabilityModel, many, what string) string {
+	s := ""
 	if st.Failed.Count > 0 {
-		s += fmt.Sprintf(" The share counts the %d simulated sets where the procedure failed as not finding it.", st.Failed.Count)
+		s += fmt.Sprintf(" The share counts the %d %s where the procedure failed as %s.", st.Failed.Count, many, what)
 	}
-	if top.Model != primary.Model && top.Chosen.Count > c.Count {
+	if top.Model != primary.Model && top.Chosen.Count > primary.Chosen.Count {
 		s += fmt.Sprintf(" The model chosen most often was %s (%d of %d).", top.Model, top.Chosen.Count, st.Resamples)
 	}
 	return s

@@ -398,11 +398,7 @@ func resamplePasses(an *Analysis, res *Result, r int, seed uint64) []stabilityPa
 // analysis's design (its constants frozen there). A non-empty reason says
 // the procedure failed entirely (an internal error included).
 func resampleOutcome(an *Analysis, rd Reading, primary *OutcomeResult, rng *rand.Rand) (or *OutcomeResult, failed string) {
-	defer func() {
-		if e := recover(); e != nil {
-			or, failed = nil, fmt.Sprintf("internal error: %v (please report it with the command line that caused it)", e)
-		}
-	}()
+	defer internalFailure(&or, &failed)
 	return decideDrawn(an, rd, primary, Resample(primary.Data, rng))
 }
 
@@ -410,11 +406,7 @@ func resampleOutcome(an *Analysis, rd Reading, primary *OutcomeResult, rng *rand
 // chosen model at its rows (SimulateChosen) and runs the decision
 // procedure and the hypotheses on it, as resampleOutcome does.
 func simulatedOutcome(an *Analysis, rd Reading, primary *OutcomeResult, rng *rand.Rand) (or *OutcomeResult, failed string) {
-	defer func() {
-		if e := recover(); e != nil {
-			or, failed = nil, fmt.Sprintf("internal error: %v (please report it with the command line that caused it)", e)
-		}
-	}()
+	defer internalFailure(&or, &failed)
 	ds, err := SimulateChosen(primary, rng)
 	if err != nil {
 		return nil, err.Error()
@@ -508,6 +500,14 @@ func decideDrawn(an *Analysis, rd Reading, primary *OutcomeResult, ds *data.Data
 	return or, ""
 }
 
+// internalFailure, deferred by a repetition of the procedure, turns a
+// panic into the repetition's failure.
+func internalFailure(or **OutcomeResult, failed *string) {
+	if e := recover(); e != nil {
+		*or, *failed = nil, fmt.Sprintf("internal error: %v (please report it with the command line that caused it)", e)
+	}
+}
+
 // imputesResamples says whether or's resamples are imputed anew: its
 // values were imputed by the program (data.missing: impute), so each
 // resample draws the rows as read, the incomplete ones among them, and
@@ -533,11 +533,7 @@ func resampled(or *OutcomeResult) *data.Dataset {
 // decision procedure on the pooled fits (decideImputed) with the primary
 // analysis's design, then the hypotheses.
 func resampleImputedOutcome(an *Analysis, rd Reading, primary *OutcomeResult, rng *rand.Rand) (or *OutcomeResult, failed string) {
-	defer func() {
-		if e := recover(); e != nil {
-			or, failed = nil, fmt.Sprintf("internal error: %v (please report it with the command line that caused it)", e)
-		}
-	}()
+	defer internalFailure(&or, &failed)
 	ds := Resample(primary.Observed, rng)
 	run, sets, dz, err := imputeChained(an, rd, ds, rng.Uint64(), primary.Design, Options{Workers: 1})
 	if err != nil {
