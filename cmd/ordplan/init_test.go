@@ -257,10 +257,10 @@ func TestInitMarkersBlockFreezing(t *testing.T) {
 	// The analyst orders the categories, names the study and deletes the
 	// markers: freeze goes on, check no longer warns.
 	s := strings.Replace(string(text), "title: EDIT the title of the report", "title: Dose and rating", 1)
-	if !strings.Contains(s, "categories: [good, poor, fair]") {
-		t.Fatalf("the categories as found are not in\n%s", s)
+	if !strings.Contains(s, "categories: [fair, good, poor]") {
+		t.Fatalf("the categories in natural order are not in\n%s", s)
 	}
-	s = strings.Replace(s, "categories: [good, poor, fair]", "categories: [poor, fair, good]", 1)
+	s = strings.Replace(s, "categories: [fair, good, poor]", "categories: [poor, fair, good]", 1)
 	var kept []string
 	for _, l := range strings.Split(s, "\n") {
 		if i := strings.Index(l, "EDIT"); i >= 0 && !strings.Contains(l, "marked EDIT") {
@@ -402,5 +402,29 @@ func TestInitNotesThousandsPoints(t *testing.T) {
 	)
 	if _, errs, code := runCLI("check", planPath); code != 1 || !strings.Contains(errs, `column "income": value "3.473" looks like 3473 written with a thousands separator`) {
 		t.Errorf("check: exit %d\n%s", code, errs)
+	}
+}
+
+// A text outcome's labels are listed in natural order, the numbers inside
+// them compared as numbers (c1, c02, c3, c05, c10, c12, then the text
+// after a number: q2a before q2b), not as found, and the line stays marked
+// EDIT: the order is the user's call.
+func TestInitOrdersTextLabelsNaturally(t *testing.T) {
+	dir := t.TempDir()
+	var b strings.Builder
+	b.WriteString("grade,x\n")
+	for i := range 60 {
+		fmt.Fprintf(&b, "%s,%d\n", []string{"c02", "c12", "c05", "c1", "c10", "c3"}[i%6], i%7)
+	}
+	data := filepath.Join(dir, "g.csv")
+	os.WriteFile(data, []byte(b.String()), 0o644)
+	p := filepath.Join(dir, "g.yaml")
+	if out, errs, code := runCLI("init", p, "--data", data, "--outcome", "grade"); code != 0 {
+		t.Fatalf("init: %d %s %s", code, out, errs)
+	}
+	text, _ := os.ReadFile(p)
+	want := "    categories: [c1, c02, c3, c05, c10, c12]   # EDIT: put them in order, lowest first\n"
+	if !strings.Contains(string(text), want) {
+		t.Errorf("want %q in:\n%s", want, text)
 	}
 }

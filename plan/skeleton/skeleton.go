@@ -1,8 +1,10 @@
 package skeleton
 
 import (
+	"cmp"
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 	"unicode"
@@ -220,7 +222,7 @@ func Write(in Input) ([]byte, error) {
 		}
 		switch {
 		case in.HaveData && kinds[outcome].Candidate && !c.Numeric:
-			w("    categories: [%s]   # EDIT: put them in order, lowest first", yamlList(c.Values))
+			w("    categories: [%s]   # EDIT: put them in order, lowest first", yamlList(naturalOrder(c.Values)))
 		case in.HaveData && c.Numeric && !c.Many && data.StrayCodeAt(c.Values) >= 0:
 			code := c.Values[data.StrayCodeAt(c.Values)]
 			w("    categories: [%s]   # EDIT: code %s lies apart from the others, as codes for \"don't know\" or a missing answer often do: if it is not a point of the scale, remove it here and list it as missing (dictionary: %s {missing: [\"%s\"]})%s", yamlList(c.Values), code, yamlString(c.Name)+":", code, zeroFraction(c))
@@ -738,4 +740,57 @@ func hasAny(name string, prefixes []string) bool {
 		}
 	}
 	return false
+}
+
+// naturalOrder is labels sorted with the numbers inside them compared as
+// numbers (c2 before c12, q1.2 before q1.10) and the text between them
+// as text: a first guess at the order of an outcome's text labels, which
+// the user checks (the line stays marked EDIT).
+func naturalOrder(labels []string) []string {
+	out := slices.Clone(labels)
+	slices.SortStableFunc(out, func(a, b string) int {
+		if c := naturalCompare(a, b); c != 0 {
+			return c
+		}
+		return strings.Compare(a, b)
+	})
+	return out
+}
+
+// naturalCompare compares a and b run by run: runs of ASCII digits by
+// their value (then the one with fewer leading zeros first), other runs
+// byte by byte.
+func naturalCompare(a, b string) int {
+	digit := func(c byte) bool { return '0' <= c && c <= '9' }
+	run := func(s string, i int) int {
+		j := i + 1
+		for j < len(s) && digit(s[j]) == digit(s[i]) {
+			j++
+		}
+		return j
+	}
+	i, j := 0, 0
+	for i < len(a) && j < len(b) {
+		ei, ej := run(a, i), run(b, j)
+		x, y := a[i:ei], b[j:ej]
+		switch {
+		case digit(a[i]) && digit(b[j]):
+			tx, ty := strings.TrimLeft(x, "0"), strings.TrimLeft(y, "0")
+			if c := cmp.Compare(len(tx), len(ty)); c != 0 {
+				return c
+			}
+			if c := strings.Compare(tx, ty); c != 0 {
+				return c
+			}
+			if c := cmp.Compare(len(x), len(y)); c != 0 {
+				return c
+			}
+		default:
+			if c := strings.Compare(x, y); c != 0 {
+				return c
+			}
+		}
+		i, j = ei, ej
+	}
+	return cmp.Compare(len(a)-i, len(b)-j)
 }
