@@ -81,3 +81,18 @@ func TestCauchyHeavyRowFinite(t *testing.T) {
 		}
 	}
 }
+
+// A thresholds-only model whose maximum is finite but flat (with the
+// Cauchy link, cutpoints far in the tails when one row weighs 1e7) enters
+// the likelihood-ratio test with its log-likelihood (LRTest), and the
+// overall fit then states that log-likelihood and the pseudo-R2 measures
+// made from it rather than n/a beside a statistic computed from it
+// (McFadden 1 - ll/ll0 by hand).
+func TestOverallFlatNullStatesLogLik(t *testing.T) {
+	full := &Result{Name: "full", Status: StatusOK, LogLik: -100, NObs: 50, NParams: 4}
+	null := &Result{Name: "null", Status: StatusFlatMaximum, LogLik: -130, NObs: 50, NParams: 3}
+	o := OverallFitSpread(full, null, &EtaSpread{})
+	if o.NullLogLik != -130 || math.Abs(o.LR.Chi2-60) > 1e-12 || math.Abs(o.McFadden-(1-100.0/130)) > 1e-12 {
+		t.Errorf("null log-likelihood %g, LR %g, McFadden %g", o.NullLogLik, o.LR.Chi2, o.McFadden)
+	}
+}

@@ -262,7 +262,7 @@ func OverallFit(d *Data, r, null *Result) Overall {
 // partitions); an empty spread leaves McKelvey-Zavoina out.
 func OverallFitSpread(r, null *Result, s *EtaSpread) Overall {
 	o := Overall{NullLogLik: math.NaN(), McFadden: math.NaN(), CoxSnell: math.NaN(), Nagelkerke: math.NaN(), McKelveyZavoina: math.NaN()}
-	if null != nil && null.OK() {
+	if null != nil && null.LikelihoodUsable() {
 		o.NullLogLik = null.LogLik
 	}
 	o.LR = LRTest(null, r)
