@@ -286,33 +286,10 @@ func TestRerunNamesSensitivityColumns(t *testing.T) {
 // one line per column; a subset that keeps the same rows says that; with
 // the data changed too, that the two are not told apart.
 func TestRerunSummarisesSensitivitySubset(t *testing.T) {
-	dir := t.TempDir()
-	data := filepath.Join(dir, "d.csv")
-	p := filepath.Join(dir, "plan.yaml")
-	writeRows(t, data, rerunRows(nil))
 	section := "sensitivity:\n  - name: younger\n    why: Older respondents may answer otherwise.\n    change:\n      subset: [{column: age, at_most: %s}]\n"
-	upTo := func(age int) int {
-		n := 0
-		for i := range 240 {
-			if 20+(i*13)%50 <= age {
-				n++
-			}
-		}
-		return n
-	}
-	run := func(at, out, previous string) string {
-		t.Helper()
-		os.WriteFile(p, []byte(fmt.Sprintf(rerunPlan, "file: d.csv")+fmt.Sprintf(section, at)), 0o644)
-		args := []string{"run", p, "--out", filepath.Join(dir, out), "--quiet"}
-		if previous != "" {
-			args = append(args, "--previous", filepath.Join(dir, previous))
-		}
-		stdout, e, code := runCLI(args...)
-		if code != 0 {
-			t.Fatalf("exit %d: %s", code, e)
-		}
-		return stdout
-	}
+	dir, run := subsetReruns(t, func(at string) string { return fmt.Sprintf(section, at) })
+	data := filepath.Join(dir, "d.csv")
+	upTo := rerunRowsUpTo
 	run("49", "a", "")
 	for _, c := range []struct{ at, out, previous, want string }{
 		{"39", "b", "a", fmt.Sprintf("since the previous run: Sensitivity analysis younger: y: its subset changed (subset[0].at_most 49 -> 39): rows used %d -> %d, and all 3 columns it reads changed with them.\n", upTo(49), upTo(39))},
@@ -333,27 +310,28 @@ func TestRerunSummarisesSensitivitySubset(t *testing.T) {
 	}
 }
 
-// The plan's own subset changed between two runs: --previous sums it up
-// in one line per outcome through the sensitivity analyses' summary
-// (subsetLine), with the rows used before and now counted here from the
-// rows written, not one line per column.
-func TestRerunSummarisesPrimarySubset(t *testing.T) {
-	dir := t.TempDir()
-	data := filepath.Join(dir, "d.csv")
-	p := filepath.Join(dir, "plan.yaml")
-	writeRows(t, data, rerunRows(nil))
-	upTo := func(age int) int {
-		n := 0
-		for i := range 240 {
-			if 20+(i*13)%50 <= age {
-				n++
-			}
+// rerunRowsUpTo counts the rows of rerunRows whose age is at most age.
+func rerunRowsUpTo(age int) int {
+	n := 0
+	for i := range 240 {
+		if 20+(i*13)%50 <= age {
+			n++
 		}
-		return n
 	}
-	run := func(at, out, previous string) string {
+	return n
+}
+
+// subsetReruns writes rerunRows to d.csv in a new folder and returns it
+// with a function running rerunPlan with the text tail(at) added (a
+// subset at_most at) into the folder out, with --previous when previous
+// is not empty, returning standard output.
+func subsetReruns(t *testing.T, tail func(at string) string) (string, func(at, out, previous string) string) {
+	dir := t.TempDir()
+	p := filepath.Join(dir, "plan.yaml")
+	writeRows(t, filepath.Join(dir, "d.csv"), rerunRows(nil))
+	return dir, func(at, out, previous string) string {
 		t.Helper()
-		os.WriteFile(p, []byte(fmt.Sprintf(rerunPlan, "file: d.csv")+"subset: [{column: age, at_most: "+at+"}]\n"), 0o644)
+		os.WriteFile(p, []byte(fmt.Sprintf(rerunPlan, "file: d.csv")+tail(at)), 0o644)
 		args := []string{"run", p, "--out", filepath.Join(dir, out), "--quiet"}
 		if previous != "" {
 			args = append(args, "--previous", filepath.Join(dir, previous))
@@ -364,6 +342,15 @@ func TestRerunSummarisesPrimarySubset(t *testing.T) {
 		}
 		return stdout
 	}
+}
+
+// The plan's own subset changed between two runs: --previous sums it up
+// in one line per outcome through the sensitivity analyses' summary
+// (subsetLine), with the rows used before and now counted here from the
+// rows written, not one line per column.
+func TestRerunSummarisesPrimarySubset(t *testing.T) {
+	_, run := subsetReruns(t, func(at string) string { return "subset: [{column: age, at_most: " + at + "}]\n" })
+	upTo := rerunRowsUpTo
 	run("60", "a", "")
 	stdout := run("45", "b", "a")
 	want := fmt.Sprintf("y: its subset changed (subset[0].at_most 60 -> 45): rows used %d -> %d, and all 3 columns it reads changed with them.\n", upTo(60), upTo(45))
