@@ -5,6 +5,8 @@ import (
 	"strings"
 
 	"gopkg.in/yaml.v3"
+
+	"ordplan/internal/words"
 )
 
 // mapping is a checked YAML mapping: only allowed keys, each at most once.
@@ -13,6 +15,9 @@ type mapping struct {
 	path string
 	node *yaml.Node // nil when the mapping was absent or null
 	vals map[string]*yaml.Node
+	// slipped holds the allowed keys that an unknown key was said to be a
+	// slip of: such a key, when required, is not also said to be missing.
+	slipped map[string]bool
 }
 
 // mapping checks that n is a mapping holding only the allowed keys. A null
@@ -43,12 +48,40 @@ func (d *decoder) mapping(n *yaml.Node, path string, allowed []string) *mapping 
 		}
 		keyLine[k.Value] = k.Line
 		if !slices.Contains(allowed, k.Value) {
-			d.errorf(k, p, "unknown key %s (allowed: %s)", quote(k.Value), strings.Join(allowed, ", "))
+			d.errorf(k, p, "unknown key %s (allowed: %s)%s", quote(k.Value), strings.Join(allowed, ", "), nearKey(k.Value, allowed))
+			if near := nearest(k.Value, allowed); near != "" {
+				if m.slipped == nil {
+					m.slipped = map[string]bool{}
+				}
+				m.slipped[near] = true
+			}
 			continue
 		}
 		m.vals[k.Value] = d.record(p, v)
 	}
 	return m
+}
+
+// nearKey suggests the allowed key an unknown key is a slip of
+// (resample for resamples, selection_stabilty), or says nothing when
+// none is near.
+func nearKey(key string, allowed []string) string {
+	if near := nearest(key, allowed); near != "" {
+		return "; did you mean " + quote(near) + "?"
+	}
+	return ""
+}
+
+// nearest is the allowed key nearest in spelling to key, or "" when none
+// is near.
+func nearest(key string, allowed []string) string {
+	if len(key) < 3 {
+		return "" // a letter or two is near too many keys to suggest one
+	}
+	if near := words.Nearest(key, allowed, 1); len(near) == 1 {
+		return near[0]
+	}
+	return ""
 }
 
 // at gives the path of key inside the mapping.
@@ -73,6 +106,8 @@ func (m *mapping) required(key string) *yaml.Node {
 	}
 	v, present := m.vals[key]
 	switch {
+	case !present && m.slipped[key]:
+		return nil // said at the unknown key that is a slip of it
 	case !present:
 		where := m.node
 		if where == nil {

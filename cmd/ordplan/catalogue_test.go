@@ -892,7 +892,9 @@ func catalogue(dir string) (items []badInput) {
 	items = []badInput{
 		// Plans.
 		{id: "P1", name: "unknown key", args: []string{"check"}, plan: edit("predictors:", "predictorz: [a]\npredictors:"), code: 1,
-			want: []string{`P1.yaml:6:1: predictorz: unknown key "predictorz" (allowed: version, title, seed, data, outcomes, subset, categorical, predictors, models, tests, rules, covariance, few_clusters, report, inference`}},
+			want: []string{`P1.yaml:6:1: predictorz: unknown key "predictorz" (allowed: version, title, seed, data, outcomes, subset, categorical, predictors, models, tests, rules, covariance, few_clusters, report, inference`, `deviations); did you mean "predictors"?`}},
+		{id: "P1", name: "a slip in a key of selection_stability", args: []string{"check", "--no-data"}, plan: goodPlan + "selection_stability: {resample: 50, seed: 3}\n", code: 1,
+			want: []string{`P1.yaml:14:23: selection_stability.resample: unknown key "resample" (allowed: resamples, seed, draw); did you mean "resamples"?`}},
 		{id: "P2", name: "unknown nested key", args: []string{"check"}, plan: edit("  file: d.csv\n", "  file: d.csv\n  colour: red\n"), code: 1,
 			want: []string{`P2.yaml:4:3: data.colour: unknown key "colour" (allowed: file, parts, missing, missing_values, delimiter, decimal, sheet, header_row, weights, weight_kind, offset, cluster, imputed, imputation)`}},
 		{id: "P3", name: "wrong type: a number for a list", args: []string{"check"}, plan: edit("predictors: [a, b]", "predictors: 3"), code: 1,
