@@ -212,6 +212,8 @@ func stabilityReading(or *runner.OutcomeResult, st *runner.Stability, primary *r
 	s := fmt.Sprintf("Plain reading: the primary analysis chose %s, and the same procedure chose it again in %d of %d resamples, a share of %s.", primary.Model, c.Count, c.Of, c.Text("MC se "))
 	turn := stabilityTurn(or, st, primary.Model)
 	switch {
+	case mostlyFailed(st):
+		s += failedReading(st, primary, "resamples")
 	case c.Rate < 0.5 && turn != nil && turn.expected:
 		s += fmt.Sprintf(" The rule that turns it down most often is rule %d (%s), in %d of %d resamples; in the primary analysis that rule kept it: %s. In a resample a test statistic of a restriction comes out at about its value in the data plus its degrees of freedom (here about %s, against the critical value %s), so a test with this p-value is expected to reject the restriction in most resamples: the bootstrap leans towards the less constrained models. The low share shows that the choice sits near this rule's margin, not how often a new study would choose the same model; the chosen model's intervals, which treat the choice as fixed in advance, leave out that the rule could have gone the other way. How often these rules would find the model if it held is another question, which `selection_stability.draw: chosen_model` answers.",
 			turn.number, mdCode(turn.kind), turn.share.Count, turn.share.Of, mdText(turn.reason), numfmt.Stat(turn.shifted), numfmt.Stat(turn.critical))
@@ -231,6 +233,8 @@ func chosenModelReading(st *runner.Stability, primary *runner.StabilityModel, to
 	c := primary.Chosen
 	s := fmt.Sprintf("Plain reading: with outcomes drawn from %s as the primary analysis estimated it, the same procedure chose it in %d of %d simulated sets, a share of %s. This is how often these rules recover the model when it holds with these estimates, at these rows; it says nothing about whether it holds.", primary.Model, c.Count, c.Of, c.Text("MC se "))
 	switch {
+	case mostlyFailed(st):
+		s += failedReading(st, primary, "simulated sets")
 	case c.Rate < 0.5:
 		s += " Less than half: even if the chosen model were true, these rules would usually choose another with data like these, so the choice alone is weak evidence for it."
 	case c.Rate < 0.8:
@@ -239,6 +243,26 @@ func chosenModelReading(st *runner.Stability, primary *runner.StabilityModel, to
 		s += " The rules find it reliably when it holds."
 	}
 	return s + readingTail(st, primary, top, "simulated sets", "not finding it")
+}
+
+// mostlyFailed says whether the procedure failed as a whole in half the
+// repetitions or more, so that the share of the choice mostly counts
+// failures.
+func mostlyFailed(st *runner.Stability) bool {
+	return st.Resamples > 0 && 2*st.Failed.Count >= st.Resamples
+}
+
+// failedReading replaces the verdict on the share when most repetitions
+// (many) failed: the share then tells how often the procedure could run,
+// not how stable the choice is.
+func failedReading(st *runner.Stability, primary *runner.StabilityModel, many string) string {
+	ran := st.Resamples - st.Failed.Count
+	cause := ""
+	if !simulatedDraw(st) {
+		cause = " (a level of a categorical predictor that few rows or clusters hold is often it: a resample without them cannot estimate its effect, and levels that are the clusters themselves fail whenever a cluster is left out)"
+	}
+	return fmt.Sprintf(" But the procedure failed as a whole in %d of %d %s (the reasons are below), so this share says how often it could be run on such data, not how stable the choice is: of the %d where it ran, it chose %s in %d. Remove the cause of the failures before reading the share%s.",
+		st.Failed.Count, st.Resamples, many, ran, primary.Model, primary.Chosen.Count, cause)
 }
 
 // readingTail ends a plain reading: the repetitions that failed, counted

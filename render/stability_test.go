@@ -61,3 +61,39 @@ func TestStabilityReadingNearMargin(t *testing.T) {
 		}
 	}
 }
+
+// TestStabilityReadingMostlyFailed: when the procedure failed as a whole in
+// most resamples (19 of 20, as when a cluster bootstrap leaves out a
+// cluster that is a level of a predictor), the plain reading does not
+// call the choice fragile on the one that ran: it says the share counts
+// failures, how many ran and what they chose, and to remove the cause;
+// with 9 of 20 failed it reads the share as before.
+func TestStabilityReadingMostlyFailed(t *testing.T) {
+	const chosen = "cumulative/parallel/logit"
+	build := func(failed int, draw string) (*runner.Stability, *runner.StabilityModel) {
+		st := &runner.Stability{Resamples: 20, Draw: draw, Failed: runner.RateOf(failed, 20), Models: []runner.StabilityModel{
+			{Model: chosen, Chosen: runner.RateOf(1, 20), Primary: true},
+		}}
+		return st, &st.Models[0]
+	}
+	or := &runner.OutcomeResult{}
+	st, pm := build(19, "")
+	got := stabilityReading(or, st, pm, st.Models[0])
+	for _, want := range []string{"failed as a whole in 19 of 20 resamples", "not how stable the choice is", "of the 1 where it ran, it chose cumulative/parallel/logit in 1", "Remove the cause of the failures", "levels that are the clusters themselves"} {
+		if !strings.Contains(got, want) {
+			t.Errorf("mostly failed: the reading lacks %q:\n%s", want, got)
+		}
+	}
+	if strings.Contains(got, "fragile") {
+		t.Errorf("mostly failed: the reading calls the choice fragile:\n%s", got)
+	}
+	st, pm = build(15, plan.StabilityChosenModel)
+	got = stabilityReading(or, st, pm, st.Models[0])
+	if !strings.Contains(got, "failed as a whole in 15 of 20 simulated sets") || strings.Contains(got, "weak evidence") || strings.Contains(got, "clusters themselves") {
+		t.Errorf("mostly failed, chosen_model: %s", got)
+	}
+	st, pm = build(9, "")
+	if got := stabilityReading(or, st, pm, st.Models[0]); !strings.Contains(got, "the choice is fragile") || strings.Contains(got, "not how stable") {
+		t.Errorf("9 of 20 failed: the reading should be as before:\n%s", got)
+	}
+}
