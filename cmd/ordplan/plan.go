@@ -148,6 +148,9 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	var queueLog io.Writer
 	if !*quiet {
 		queueLog = stderr
+		if qcfg != nil && p.SelectionStability != nil {
+			fmt.Fprintln(stderr, stabilityLocalNote(p))
+		}
 	}
 	res, err := runPlan(p, opt, qcfg, *qf.deadline, queueLog)
 	if err != nil {

@@ -65,11 +65,24 @@ func (p *progress) Replicated(n, done, total int) {
 // (runner.Options.Resampled): bootstrap resamples, or sets simulated from
 // the chosen model (draw: chosen_model).
 func (p *progress) resampled(pl *plan.Plan) func(done, total int) {
-	what := "bootstrap resamples"
-	if pl.SelectionStability != nil && pl.SelectionStability.Draw == plan.StabilityChosenModel {
-		what = "sets simulated from the chosen model"
-	}
+	what := stabilityWhat(pl)
 	return func(done, total int) { p.step("selection stability", what, done, total) }
+}
+
+// stabilityWhat names selection_stability's repetitions: bootstrap
+// resamples, or sets simulated from the chosen model (draw: chosen_model).
+func stabilityWhat(pl *plan.Plan) string {
+	if pl.SelectionStability != nil && pl.SelectionStability.Draw == plan.StabilityChosenModel {
+		return "sets simulated from the chosen model"
+	}
+	return "bootstrap resamples"
+}
+
+// stabilityLocalNote is the line ordplan run --queue prints for a plan with
+// selection_stability: its repetitions are fitted by this process, not by
+// the queue's workers, so that a user watching idle workers knows why.
+func stabilityLocalNote(pl *plan.Plan) string {
+	return fmt.Sprintf("selection stability: its %d %s are fitted on this machine (as many at once as --workers allows), not sent to the queue's workers", pl.SelectionStability.Resamples, stabilityWhat(pl))
 }
 
 // Imputed implements runner.ImputationProgress: the imputed sets of an

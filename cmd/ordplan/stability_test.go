@@ -8,6 +8,9 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
+
+	"ordplan/runner/queue/localserver"
 )
 
 // TestSelectionStabilityOutputs: a plan with selection_stability run as a
@@ -150,5 +153,40 @@ func TestSelectionStabilityChosenModelOutputs(t *testing.T) {
 	}
 	if strings.Contains(reports[0], "bootstrap resamples of the data used here") {
 		t.Error("the section describes bootstrap resamples")
+	}
+}
+
+// ordplan run --queue on a plan with selection_stability says once, before
+// the fits, that the resamples are fitted here and not by the queue's
+// workers, and writes the same decisions.json as a run without the queue.
+func TestSelectionStabilityQueueSaysLocal(t *testing.T) {
+	if testing.Short() {
+		t.Skip("queue")
+	}
+	dir := t.TempDir()
+	var b strings.Builder
+	b.WriteString("x,y\n")
+	for i := range 120 {
+		fmt.Fprintf(&b, "%d,%d\n", i%11, 1+(i*7+i%11)%3)
+	}
+	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
+	planPath := filepath.Join(dir, "p.yaml")
+	os.WriteFile(planPath, []byte("version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [x]\n"+
+		"models: {approaches: [cumulative], effects: [parallel, nonparallel]}\ntests: {parallel_lines: [lr]}\n"+
+		"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\nselection_stability: {resamples: 20, seed: 4}\n"), 0o644)
+	if o, errs, code := runCLI("run", planPath, "--out", filepath.Join(dir, "local"), "--quiet"); code != 0 {
+		t.Fatalf("local: exit %d: %s %s", code, o, errs)
+	}
+	url := localserver.ForTest(t)
+	startWorkerProc(t, url, "w1")
+	r := waitRun(t, runAsync("run", planPath, "--out", filepath.Join(dir, "queue"), "--queue", url), 120*time.Second)
+	const want = "selection stability: its 20 bootstrap resamples are fitted on this machine (as many at once as --workers allows), not sent to the queue's workers"
+	if !strings.Contains(r[1], want) {
+		t.Errorf("stderr lacks %q:\n%s", want, r[1])
+	}
+	a, err1 := os.ReadFile(filepath.Join(dir, "local", "decisions.json"))
+	c, err2 := os.ReadFile(filepath.Join(dir, "queue", "decisions.json"))
+	if err1 != nil || err2 != nil || !strings.Contains(string(a), "selection_stability") || !bytes.Equal(a, c) {
+		t.Errorf("decisions.json differs between the local and the queued run (%v %v)", err1, err2)
 	}
 }
