@@ -93,7 +93,8 @@ func writeStability(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	d.captioned("Model chosen in the "+where+" (share with its Monte Carlo standard error)").table([]string{"Model", head, "Share (MC se)", "Note"}, rows)
 	d.p("%s", stabilityReading(or, st, primary, top))
 	if len(st.Failures) > 0 {
-		d.p("In %d of %d %s the procedure failed as a whole (the %s's data could not be fitted at all), counted apart from those where the rules chose nothing; the reasons met first: %s.", st.Failed.Count, st.Resamples, many, one, mdText(strings.Join(st.Failures, "; ")))
+		d.p("In %d of %d %s the procedure failed as a whole (the %s's data could not be fitted at all), counted apart from those where the rules chose nothing. The reasons met first, each once (at most %d, as the %s's own fit gave them):", st.Failed.Count, st.Resamples, many, one, runner.MaxStabilityFailures, one)
+		d.list(words.Each(st.Failures, mdText))
 	}
 
 	// Which rule rejected which model.

@@ -16,6 +16,10 @@ import (
 	"ordplan/runner/fit"
 )
 
+// MaxStabilityFailures is how many distinct reasons of failed repetitions
+// a Stability keeps (the first met).
+const MaxStabilityFailures = 5
+
 // Stability is selection_stability for one outcome: the whole decision
 // procedure (decideOutcome: the partial sets, the grid, the tests and the
 // rules, in order) repeated on bootstrap resamples of the rows used, and
@@ -572,7 +576,7 @@ func summarizeStability(an *Analysis, or *OutcomeResult, ps []stabilityPass, st 
 		switch {
 		case p.failed != "":
 			failed++
-			if !slices.Contains(s.Failures, p.failed) && len(s.Failures) < 5 {
+			if !slices.Contains(s.Failures, p.failed) && len(s.Failures) < MaxStabilityFailures {
 				s.Failures = append(s.Failures, p.failed)
 			}
 		case p.chosen == "":

@@ -190,3 +190,43 @@ func TestSelectionStabilityQueueSaysLocal(t *testing.T) {
 		t.Errorf("decisions.json differs between the local and the queued run (%v %v)", err1, err2)
 	}
 }
+
+// A cluster bootstrap of a plan whose predictors hold the clusters as
+// levels (site fixed effects, errors clustered by a copy of site) fails
+// in every resample that leaves a site out: the report's plain reading
+// says the share counts failures, not stability, and the reasons are
+// listed one to a line.
+func TestSelectionStabilityMostlyFailedReport(t *testing.T) {
+	dir := t.TempDir()
+	var b strings.Builder
+	b.WriteString("x,y,site,site2\n")
+	for i := range 160 {
+		fmt.Fprintf(&b, "%d,%d,s%d,s%d\n", i%13, 1+(i*7+i%13)%3, i%6, i%6)
+	}
+	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
+	planPath := filepath.Join(dir, "p.yaml")
+	os.WriteFile(planPath, []byte("version: 1\ndata: {file: d.csv, cluster: site2}\noutcomes: [{column: y}]\npredictors: [x, site]\n"+
+		"categorical: {site: {levels: [s0, s1, s2, s3, s4, s5]}}\ncovariance: clustered\n"+
+		"models: {approaches: [cumulative], effects: [parallel]}\n"+
+		"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\nselection_stability: {resamples: 20, seed: 4}\n"), 0o644)
+	out := filepath.Join(dir, "out")
+	if o, errs, code := runCLI("run", planPath, "--out", out, "--quiet"); code != 0 {
+		t.Fatalf("exit %d: %s %s", code, o, errs)
+	}
+	md, err := os.ReadFile(filepath.Join(out, "report.md"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	report := string(md)
+	for _, want := range []string{"so this share says how often it could be run on such data, not how stable the choice is",
+		"levels that are the clusters themselves fail whenever a cluster is left out",
+		"The reasons met first, each once (at most 5, as the resample's own fit gave them):\n\n- ",
+		`term "site": its column "site.s`} {
+		if !strings.Contains(report, want) {
+			t.Errorf("report.md lacks %q", want)
+		}
+	}
+	if strings.Contains(report, "the choice is fragile") {
+		t.Errorf("report.md calls the choice fragile on the few resamples that ran")
+	}
+}
