@@ -239,9 +239,30 @@ func writeSensitivityOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult,
 	d.p("The primary analysis's chosen model, %s, fitted under each sensitivity analysis (whatever its rules chose): its effects with %s intervals, as in the primary analysis's table of estimates; the boundaries' tau are left out. %s", or.Chosen.ID, pct(level), sensitivityReferenceWords)
 	d.captioned("Estimates of "+or.Chosen.ID+" under each analysis, "+or.Outcome.Column).table(
 		[]string{"Parameter", "Analysis", "Estimate", "Std. error", pct(level) + " low", pct(level) + " high", "Reference", "df"}, est)
+	for _, sr := range r.Sensitivity {
+		if n := notEstimableUnder(sr, or); n != "" {
+			d.p("n/a under %s: %s.", mdText(sr.Sensitivity.Name), n)
+		}
+	}
 	if len(missing) > 0 {
 		d.p("Not fitted under: %s.", strings.Join(missing, "; "))
 	}
+}
+
+// notEstimableUnder says why the primary analysis's chosen model, fitted
+// under the sensitivity analysis sr with clustered errors, has standard
+// errors that are not estimable (fit.NotEstimable), or "" when it has
+// none such.
+func notEstimableUnder(sr *runner.SensitivityResult, or *runner.OutcomeResult) string {
+	sor := sr.Outcome(or.Outcome.Column)
+	if sor == nil {
+		return ""
+	}
+	f := sor.Find(or.Chosen.ID)
+	if f == nil || f.Auxiliary || f.Result == nil || !f.OK() {
+		return ""
+	}
+	return f.Result.NotEstimableNote(mdCode)
 }
 
 // sensitivityRows says, for one outcome under one sensitivity analysis,
