@@ -281,7 +281,7 @@ func writeMissing(d *doc, or *runner.OutcomeResult) {
 	}
 	d.captioned("Missing values per used column").table([]string{"Column", "Rows missing", "Share"}, rows)
 
-	d.p("Each combination of used columns missing together (x) and how many rows have it; the last row is the complete rows.")
+	d.p("Each combination of used columns missing together and how many rows have it: an x in a column's cell marks that column missing in those rows; the last row is the complete rows.")
 	head := append([]string{"Rows", "Share"}, mt.Columns...)
 	rows = nil
 	for _, p := range mt.Patterns {
