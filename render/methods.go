@@ -266,9 +266,9 @@ func registeredText(st *lock.Status) string {
 	s += fmt.Sprintf(", canonical SHA-256 %s", short(st.Lock.SHA256))
 	switch st.State {
 	case lock.StateDeviations:
-		s += fmt.Sprintf("; the plan run departs from the frozen one in %d key(s), each with a stated reason listed at the head of the report", len(st.Changes))
+		s += fmt.Sprintf("; the plan run departs from the frozen one in %d key%s, each with a stated reason listed at the head of the report", len(st.Changes), plural(len(st.Changes)))
 	case lock.StateUnexplained:
-		s += fmt.Sprintf("; the plan run departs from the frozen one in %d key(s), %d of them without a stated reason", len(st.Changes), st.Unexplained())
+		s += fmt.Sprintf("; the plan run departs from the frozen one in %d key%s, %d of them without a stated reason", len(st.Changes), plural(len(st.Changes)), st.Unexplained())
 	}
 	return s
 }

@@ -33,7 +33,7 @@ func TestPowerReportWords(t *testing.T) {
 			[]string{"**Registered plan: matches**", "The plan simulated here is the frozen plan", "(Wald tests at alpha 0.05). As in the plan's run (inference.multiplicity: holm), a hypothesis counts as rejected when its p-value adjusted by Holm's step-down correction (family-wise error rate) over every hypothesis of every outcome, each in its chosen model, is below alpha."},
 			[]string{"The plan run here"}},
 		{"deviations", &lock.Status{State: lock.StateDeviations, LockFile: "p.lock.json", Lock: f, Changes: changed}, "benjamini_hochberg",
-			[]string{"## Deviations from the registered plan", "The plan simulated here, whose power and model choice are below, departs from it in 1 key(s)", "| `rules[1].reject_if_test_rejects.alpha` | `0.01` | `0.02` | the pilot |", "| Key | Registered | This study | Stated reason |", "Benjamini-Hochberg"},
+			[]string{"## Deviations from the registered plan", "The plan simulated here, whose power and model choice are below, departs from it in 1 key", "| `rules[1].reject_if_test_rejects.alpha` | `0.01` | `0.02` | the pilot |", "| Key | Registered | This study | Stated reason |", "Benjamini-Hochberg"},
 			[]string{"listed at the head of the report", "This run"}},
 		{"forced", &lock.Status{State: lock.StateUnexplained, LockFile: "p.lock.json", Lock: f, Changes: []lock.Explained{{Change: changed[0].Change}}}, "",
 			[]string{"the study was forced with `--allow-unregistered-changes`.** The power and model choice below are those of a plan that differs from the registered one", "**no stated reason**"},

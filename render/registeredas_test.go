@@ -22,9 +22,9 @@ func TestMethodsNameTheRegistration(t *testing.T) {
 		{&lock.Status{State: lock.StateNone, LockFile: "p.lock.json"}, "; the plan was not frozen in a lock file, so the report cannot show when it was written"},
 		{&lock.Status{State: lock.StateMatches, Lock: f}, "; frozen on 2026-01-02T03:04:05Z, registration REG-7, canonical SHA-256 0123456789ab"},
 		{&lock.Status{State: lock.StateDeviations, Lock: f, Changes: []lock.Explained{{Change: lock.Change{Path: "seed"}, Reason: "why"}}},
-			"; frozen on 2026-01-02T03:04:05Z, registration REG-7, canonical SHA-256 0123456789ab; the plan run departs from the frozen one in 1 key(s), each with a stated reason listed at the head of the report"},
+			"; frozen on 2026-01-02T03:04:05Z, registration REG-7, canonical SHA-256 0123456789ab; the plan run departs from the frozen one in 1 key, each with a stated reason listed at the head of the report"},
 		{&lock.Status{State: lock.StateUnexplained, Lock: f, Changes: []lock.Explained{{Change: lock.Change{Path: "seed"}, Reason: "why"}, {Change: lock.Change{Path: "title"}}}},
-			"; the plan run departs from the frozen one in 2 key(s), 1 of them without a stated reason"},
+			"; the plan run departs from the frozen one in 2 keys, 1 of them without a stated reason"},
 	} {
 		got := registeredAs(&runner.Result{Registration: tc.st})
 		if tc.want == "" && got != "" || !strings.HasSuffix(got, tc.want) {

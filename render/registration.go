@@ -91,7 +91,7 @@ func writeLockStatus(d *doc, st *lock.Status, version string, w lockWords, earli
 			st.Unexplained(), len(st.Changes), w.what, w.forced)
 	}
 	d.h(2, "Deviations from the registered plan")
-	d.p("The registered plan is %s. %s in %d key(s) of the canonical form:", frozen(), w.departs, len(st.Changes))
+	d.p("The registered plan is %s. %s in %d key%s of the canonical form:", frozen(), w.departs, len(st.Changes), plural(len(st.Changes)))
 	rows := make([][]string, 0, len(st.Changes))
 	for _, c := range st.Changes {
 		reason := c.Reason
@@ -133,7 +133,7 @@ func writeUnusedDeviations(d *doc, st *lock.Status) {
 		}
 		items = append(items, item)
 	}
-	d.p("The plan's `deviations` list also names key(s) that did not change from the registered plan:")
+	d.p("The plan's `deviations` list also names keys that did not change from the registered plan:")
 	d.list(items)
 }
 

@@ -45,7 +45,7 @@ func registrationItems(dir string) []badInput {
 	return []badInput{
 		{id: "R1", name: "plan changed after freezing, no stated reason", args: []string{"run"}, plan: changed, code: 1, lines: true,
 			setup: func(t *testing.T, dir, id string) { freezeAs(t, dir, id, goodPlan) },
-			want: []string{"R1.yaml: the plan departs from its registered form (R1.lock.json, frozen 2026-12-01T09:00:00Z) in 1 key(s) without a stated reason:",
+			want: []string{"R1.yaml: the plan departs from its registered form (R1.lock.json, frozen 2026-12-01T09:00:00Z) in 1 key without a stated reason:",
 				`rules[1].choose.by: "aic" -> "bic"`, "--allow-unregistered-changes"}},
 		{id: "R7", name: "a deviation's key misspelt", args: []string{"run"}, plan: changed + "deviations:\n  - key: rules[1].chose.by\n    reason: BIC was registered in the protocol\n", code: 1, lines: true,
 			setup: func(t *testing.T, dir, id string) { freezeAs(t, dir, id, goodPlan) },

@@ -400,13 +400,13 @@ func TestDerivedKeyFollowsItsKey(t *testing.T) {
 	// No reason: the message lists the keys the plan writes, once each.
 	p, _ = freeze(changed)
 	_, err = Check(p, false)
-	if err == nil || !strings.Contains(err.Error(), "in 2 key(s) without a stated reason:\n  title: \"first\" -> \"second\"\n  outcomes[0].column: \"y\" -> \"y2\"\nstate the reason") {
+	if err == nil || !strings.Contains(err.Error(), "in 2 keys without a stated reason:\n  title: \"first\" -> \"second\"\n  outcomes[0].column: \"y\" -> \"y2\"\nstate the reason") {
 		t.Errorf("message: %v", err)
 	}
 	// report.title written in the plan: a change of its own.
 	p, _ = freeze(strings.Replace(base, "title: first", "title: second\nreport: {title: second}", 1) + "deviations:\n  - key: title\n    reason: a typo\n")
 	_, err = Check(p, false)
-	if err == nil || !strings.Contains(err.Error(), "in 1 key(s) without a stated reason:\n  report.title: \"first\" -> \"second\"\n") {
+	if err == nil || !strings.Contains(err.Error(), "in 1 key without a stated reason:\n  report.title: \"first\" -> \"second\"\n") {
 		t.Errorf("report.title written: %v", err)
 	}
 }
