@@ -2,7 +2,6 @@ package main
 
 import (
 	"fmt"
-	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -23,19 +22,9 @@ func TestMissingPatternsMarkWords(t *testing.T) {
 		}
 		fmt.Fprintf(&b, "%d,%s,%d\n", 1+(i*7+i%11)%3, arm, i%11)
 	}
-	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
-	planPath := filepath.Join(dir, "p.yaml")
-	os.WriteFile(planPath, []byte("version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [arm, x]\n"+
-		"models: {approaches: [cumulative], effects: [parallel]}\nrules:\n  - reject_unconverged: true\n  - choose: {by: aic}\n"), 0o644)
-	out := filepath.Join(dir, "out")
-	if o, errs, code := runCLI("run", planPath, "--out", out, "--quiet"); code != 0 {
-		t.Fatalf("exit %d: %s %s", code, o, errs)
-	}
-	md, err := os.ReadFile(filepath.Join(out, "report.md"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	report := string(md)
+	planPath := writeStudy(t, dir, b.String(), "version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [arm, x]\n"+
+		"models: {approaches: [cumulative], effects: [parallel]}\nrules:\n  - reject_unconverged: true\n  - choose: {by: aic}\n")
+	report := runReport(t, planPath, filepath.Join(dir, "out"))
 	if !strings.Contains(report, "an x in a column's cell marks that column missing in those rows") || strings.Contains(report, "missing together (x)") {
 		t.Errorf("report.md does not say what the patterns' x marks")
 	}

@@ -544,22 +544,12 @@ func TestSensitivityNotEstimableNote(t *testing.T) {
 	for i := range 120 {
 		fmt.Fprintf(&b, "%d,%d,s%d,s%d\n", i%13, 1+(i*7+i%13)%3, i%4, i%4)
 	}
-	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
-	planPath := filepath.Join(dir, "p.yaml")
-	os.WriteFile(planPath, []byte("version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [x, site]\n"+
+	planPath := writeStudy(t, dir, b.String(), "version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [x, site]\n"+
 		"categorical: {site: {levels: [s0, s1, s2, s3]}}\n"+
 		"models: {approaches: [cumulative], effects: [parallel]}\n"+
 		"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\n"+
-		"sensitivity:\n  - name: by site\n    why: rows of a site may be alike\n    change: {covariance: clustered, data.cluster: site2}\n"), 0o644)
-	out := filepath.Join(dir, "out")
-	if o, errs, code := runCLI("run", planPath, "--out", out, "--quiet"); code != 0 {
-		t.Fatalf("exit %d: %s %s", code, o, errs)
-	}
-	md, err := os.ReadFile(filepath.Join(out, "report.md"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	report := string(md)
+		"sensitivity:\n  - name: by site\n    why: rows of a site may be alike\n    change: {covariance: clustered, data.cluster: site2}\n")
+	report := runReport(t, planPath, filepath.Join(dir, "out"))
 	for _, want := range []string{"| site.s1 | by site | ", " | n/a | n/a | n/a | t | 3.0 |",
 		"n/a under by site: the standard errors of `tau[1]`, `tau[2]`, `site.s1`, `site.s2`, `site.s3` are not estimable under clustered errors"} {
 		if !strings.Contains(report, want) {

@@ -169,14 +169,10 @@ func TestSelectionStabilityQueueSaysLocal(t *testing.T) {
 	for i := range 120 {
 		fmt.Fprintf(&b, "%d,%d\n", i%11, 1+(i*7+i%11)%3)
 	}
-	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
-	planPath := filepath.Join(dir, "p.yaml")
-	os.WriteFile(planPath, []byte("version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [x]\n"+
+	planPath := writeStudy(t, dir, b.String(), "version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [x]\n"+
 		"models: {approaches: [cumulative], effects: [parallel, nonparallel]}\ntests: {parallel_lines: [lr]}\n"+
-		"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\nselection_stability: {resamples: 20, seed: 4}\n"), 0o644)
-	if o, errs, code := runCLI("run", planPath, "--out", filepath.Join(dir, "local"), "--quiet"); code != 0 {
-		t.Fatalf("local: exit %d: %s %s", code, o, errs)
-	}
+		"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\nselection_stability: {resamples: 20, seed: 4}\n")
+	runReport(t, planPath, filepath.Join(dir, "local"))
 	url := localserver.ForTest(t)
 	startWorkerProc(t, url, "w1")
 	r := waitRun(t, runAsync("run", planPath, "--out", filepath.Join(dir, "queue"), "--queue", url), 120*time.Second)
@@ -203,21 +199,12 @@ func TestSelectionStabilityMostlyFailedReport(t *testing.T) {
 	for i := range 160 {
 		fmt.Fprintf(&b, "%d,%d,s%d,s%d\n", i%13, 1+(i*7+i%13)%3, i%6, i%6)
 	}
-	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
-	planPath := filepath.Join(dir, "p.yaml")
-	os.WriteFile(planPath, []byte("version: 1\ndata: {file: d.csv, cluster: site2}\noutcomes: [{column: y}]\npredictors: [x, site]\n"+
+	planPath := writeStudy(t, dir, b.String(), "version: 1\ndata: {file: d.csv, cluster: site2}\noutcomes: [{column: y}]\npredictors: [x, site]\n"+
 		"categorical: {site: {levels: [s0, s1, s2, s3, s4, s5]}}\ncovariance: clustered\n"+
 		"models: {approaches: [cumulative], effects: [parallel]}\n"+
-		"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\nselection_stability: {resamples: 20, seed: 4}\n"), 0o644)
+		"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\nselection_stability: {resamples: 20, seed: 4}\n")
 	out := filepath.Join(dir, "out")
-	if o, errs, code := runCLI("run", planPath, "--out", out, "--quiet"); code != 0 {
-		t.Fatalf("exit %d: %s %s", code, o, errs)
-	}
-	md, err := os.ReadFile(filepath.Join(out, "report.md"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	report := string(md)
+	report := runReport(t, planPath, out)
 	for _, want := range []string{"so this share says how often it could be run on such data, not how stable the choice is",
 		"levels that are the clusters themselves fail whenever a cluster is left out",
 		"The reasons met first, each once (at most 5, as the resample's own fit gave them):\n\n- ",
