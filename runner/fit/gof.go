@@ -2,13 +2,17 @@ package fit
 
 import (
 	"cmp"
+	"errors"
 	"fmt"
 	"maps"
 	"math"
+	"regexp"
 	"slices"
 	"sort"
 	"strconv"
 	"strings"
+
+	"ordplan/internal/words"
 )
 
 // Goodness of fit by groups of the ordinal score (see docs/models.md,
@@ -158,18 +162,29 @@ func LipsitzTest(d *Data, r *Result, groups int, opt Options) (*Lipsitz, error) 
 
 // lipsitzVerdict is the Lipsitz test of fit r against full, its refit with
 // the indicators of G score groups (or why the refit failed, err), on the
-// rows in one place or summed over parts alike.
+// rows in one place or summed over parts alike. A reason never names an
+// indicator by its internal name (refitWords).
 func lipsitzVerdict(r, full *Result, G int, err error) Test {
 	if err != nil {
-		return refitFailed(G, err)
+		return refitFailed(refitColumns(full, r, G), G, err)
 	}
 	if r.OK() && full != nil && !full.OK() {
 		// The refit alone failed: say so, not that the model did.
-		return failedTest("lipsitz", "the model with indicators of the %d groups of predicted score %s", G, refitFailure(full))
+		return failedTest("lipsitz", "the model with indicators of the %d groups of predicted score %s", G, refitWords(refitFailure(full)))
 	}
 	t := LRTest(r, full)
 	t.Name = "lipsitz"
 	return t
+}
+
+// refitColumns is the columns of full, the refit of r with the indicators
+// of G groups, or when there is no refit (nil), r's followed by the
+// indicators.
+func refitColumns(full, r *Result, G int) []string {
+	if full != nil {
+		return full.Predictors
+	}
+	return append(slices.Clone(r.Predictors), indicatorNames(G)...)
 }
 
 // lipsitzRefit fits the model of r with the indicators of t's groups
@@ -193,12 +208,93 @@ func lipsitzRefit(d *Data, r *Result, t *ScoreGroups, opt Options) (*Result, err
 }
 
 // refitFailed is the Lipsitz test whose refit with the indicators of G
-// groups failed with err.
-func refitFailed(G int, err error) Test {
-	if strings.Contains(err.Error(), "collinear") {
-		return failedTest("lipsitz", "not defined for these data: the score groups coincide with values of the predictors (too few distinct predictor patterns for %d groups), so their indicators are a combination of the predictors (%v)", G, err)
+// groups failed with err; names are the refit's columns, r's predictors
+// and then the indicators.
+func refitFailed(names []string, G int, err error) Test {
+	var in *InputError
+	if errors.As(err, &in) && in.Collinear != nil && in.Collinear.Predictor < len(names) {
+		c := in.Collinear
+		what := refitWords(names[c.Predictor])
+		if c.Constant {
+			return failedTest("lipsitz", "not defined for these data: %s takes one value, %g, in every row, so its effect cannot be estimated beside the thresholds", what, c.Value)
+		}
+		var with []string
+		for _, k := range c.With {
+			with = append(with, names[k])
+		}
+		return failedTest("lipsitz", "not defined for these data: the score groups coincide with values of the predictors (too few distinct predictor patterns for %d groups), so %s is a combination of %s", G, what, words.AndList(append(refitNames(with, strconv.Quote), "the constant")))
 	}
-	return failedTest("lipsitz", "the model with group indicators could not be fitted: %v", err)
+	return failedTest("lipsitz", "the model with group indicators could not be fitted: %s", refitWords(err.Error()))
+}
+
+// refitNames is a list of the refit's parameters or columns in the user's
+// terms: the model's own names as they are (or as quote writes them), each
+// run of indicators as one item (indicatorPhrase).
+func refitNames(names []string, quote func(string) string) []string {
+	var out, groups []string
+	flush := func() {
+		if len(groups) > 0 {
+			out = append(out, indicatorPhrase(groups))
+			groups = nil
+		}
+	}
+	for _, name := range names {
+		if g, ok := indicatorGroup(name); ok {
+			groups = append(groups, g)
+			continue
+		}
+		flush()
+		if quote != nil {
+			name = quote(name)
+		}
+		out = append(out, name)
+	}
+	flush()
+	return out
+}
+
+// indicatorGroup is the group number of an indicator's name
+// score_group_G, if name is one.
+func indicatorGroup(name string) (string, bool) {
+	g, ok := strings.CutPrefix(name, indicatorPrefix)
+	return g, ok && allDigits(g)
+}
+
+// indicatorPhrase names the indicators of the groups listed (their
+// numbers, increasing) as the user knows them: "the indicator of group 3
+// of predicted score", "the indicators of groups 2 to 10 of predicted
+// score".
+func indicatorPhrase(groups []string) string {
+	if len(groups) == 1 {
+		return "the indicator of group " + groups[0] + " of predicted score"
+	}
+	run := true
+	for i := 1; i < len(groups); i++ {
+		a, _ := strconv.Atoi(groups[i-1])
+		b, _ := strconv.Atoi(groups[i])
+		run = run && b == a+1
+	}
+	if run {
+		return "the indicators of groups " + groups[0] + " to " + groups[len(groups)-1] + " of predicted score"
+	}
+	return "the indicators of groups " + words.AndList(groups) + " of predicted score"
+}
+
+// indicatorRun is a list of indicator names, quoted or not, in a message.
+var indicatorRun = regexp.MustCompile(`"?` + regexp.QuoteMeta(indicatorPrefix) + `\d+"?(?:, "?` + regexp.QuoteMeta(indicatorPrefix) + `\d+"?)*`)
+
+// refitWords is a message about the refit with every list of indicator
+// names in it said in the user's terms (indicatorPhrase): those names are
+// the program's own, seen nowhere else.
+func refitWords(msg string) string {
+	return indicatorRun.ReplaceAllStringFunc(msg, func(run string) string {
+		var groups []string
+		for _, name := range strings.Split(run, ", ") {
+			g, _ := indicatorGroup(strings.Trim(name, `"`))
+			groups = append(groups, g)
+		}
+		return indicatorPhrase(groups)
+	})
 }
 
 // refitFailure says why the refit full with score-group indicators has no
@@ -215,7 +311,7 @@ func refitFailure(full *Result) string {
 	}
 	why := "the log-likelihood keeps rising as parameters diverge"
 	if s != nil && len(s.Parameters) > 0 {
-		why = fmt.Sprintf("the log-likelihood keeps rising as %s diverge", strings.Join(s.Parameters, ", "))
+		why = fmt.Sprintf("the log-likelihood keeps rising as %s diverge", words.AndList(refitNames(s.Parameters, nil)))
 	}
 	return "has no finite maximum (separation: " + why + ", as when an outcome category is missing from some of the groups), so the likelihood ratio has no finite value"
 }

@@ -407,6 +407,12 @@ func TestLipsitzNotDefinedOnFewPatterns(t *testing.T) {
 	if lz.Test.OK || !strings.Contains(lz.Test.Reason, "not defined for these data") || lz.Table == nil || lz.Table.Groups != 2 {
 		t.Errorf("got %+v with %d groups", lz.Test, lz.Table.Groups)
 	}
+	// The indicator is named as the user knows it, not by its column's
+	// internal name, and no removal of a predictor is advised.
+	want := `so the indicator of group 2 of predicted score is a combination of "temp" and the constant`
+	if !strings.HasSuffix(lz.Test.Reason, want) || strings.Contains(lz.Test.Reason, indicatorPrefix) || strings.Contains(lz.Test.Reason, "remove") {
+		t.Errorf("reason %q, want it to end %q", lz.Test.Reason, want)
+	}
 }
 
 // TestLipsitzRefitSeparated: seeded data of our own in which the lowest
@@ -444,9 +450,43 @@ func TestLipsitzRefitSeparated(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	want := "the model with indicators of the 10 groups of predicted score has no finite maximum (separation: the log-likelihood keeps rising as tau[1]"
-	if lz.Test.OK || !strings.HasPrefix(lz.Test.Reason, want) || strings.Contains(lz.Test.Reason, r.Name) {
+	want := "the model with indicators of the 10 groups of predicted score has no finite maximum (separation: the log-likelihood keeps rising as tau[1], tau[2], tau[3] and the indicators of groups 2 to 10 of predicted score diverge"
+	if lz.Test.OK || !strings.HasPrefix(lz.Test.Reason, want) || strings.Contains(lz.Test.Reason, r.Name) || strings.Contains(lz.Test.Reason, indicatorPrefix) {
 		t.Errorf("test %+v", lz.Test)
+	}
+}
+
+// TestRefitWordsNameIndicatorsAsGroups: the messages of a failed Lipsitz
+// refit (the refit's own, which list its parameters and columns by name)
+// say the indicators as groups of predicted score: one, a run, a list
+// with gaps, quoted or not, beside the model's own names, and a constant
+// indicator (an empty group) too.
+func TestRefitWordsNameIndicatorsAsGroups(t *testing.T) {
+	for _, c := range []struct{ in, want string }{
+		{"nearly flat (tau[2], score_group_3); predictors involved: x, score_group_3",
+			"nearly flat (tau[2], the indicator of group 3 of predicted score); predictors involved: x, the indicator of group 3 of predicted score"},
+		{"along that direction: score_group_2, score_group_3, score_group_4)",
+			"along that direction: the indicators of groups 2 to 4 of predicted score)"},
+		{`predictor "score_group_2", "score_group_5" and x`,
+			`predictor the indicators of groups 2 and 5 of predicted score and x`},
+		{"score_group_2, score_group_3, score_group_7",
+			"the indicators of groups 2, 3 and 7 of predicted score"},
+		{"score_groups and score_group_x stay", "score_groups and score_group_x stay"},
+	} {
+		if got := refitWords(c.in); got != c.want {
+			t.Errorf("refitWords(%q) = %q, want %q", c.in, got, c.want)
+		}
+	}
+	names := []string{"x", "z", "score_group_2", "score_group_3"}
+	err := &InputError{Msg: `predictor "score_group_3" is constant`, Collinear: &Collinearity{Predictor: 3, Constant: true}}
+	want := "not defined for these data: the indicator of group 3 of predicted score takes one value, 0, in every row, so its effect cannot be estimated beside the thresholds"
+	if got := refitFailed(names, 3, err); got.OK || got.Reason != want {
+		t.Errorf("constant indicator: %q, want %q", got.Reason, want)
+	}
+	err = &InputError{Msg: "collinear", Collinear: &Collinearity{Predictor: 3, With: []int{0, 2}}}
+	want = `not defined for these data: the score groups coincide with values of the predictors (too few distinct predictor patterns for 3 groups), so the indicator of group 3 of predicted score is a combination of "x", the indicator of group 2 of predicted score and the constant`
+	if got := refitFailed(names, 3, err); got.Reason != want {
+		t.Errorf("collinear indicator: %q, want %q", got.Reason, want)
 	}
 }
 

@@ -484,7 +484,7 @@ func LipsitzOverParts(r *Result, w Whole, parts ScoreParts, groups int, opt Opti
 		mo.Merge(a.Moments)
 	}
 	if _, err := rankVerdict(aw.Predictors, mo.Mean, mo.Weight, mo.Cross); err != nil {
-		out.Test = refitFailed(G, err)
+		out.Test = refitFailed(aw.Predictors, G, err)
 		return out, nil
 	}
 	if w.Spread != nil {

@@ -169,6 +169,9 @@ func TestLipsitzOverPartsTies(t *testing.T) {
 		if got.Test.OK != local.Test.OK || got.Test.Reason != local.Test.Reason || math.Abs(got.Test.Chi2-local.Test.Chi2) > 1e-6 {
 			t.Errorf("%v: %+v, want %+v", cols, got.Test, local.Test)
 		}
+		if strings.Contains(got.Test.Reason, indicatorPrefix) {
+			t.Errorf("%v: the reason names an indicator by its internal name: %s", cols, got.Test.Reason)
+		}
 	}
 }
 
@@ -205,6 +208,9 @@ func TestLipsitzOverPartsDiscreteSendsFewKeys(t *testing.T) {
 		}
 		if got.Test.OK != local.Test.OK || got.Test.Reason != local.Test.Reason || math.Abs(got.Test.Chi2-local.Test.Chi2) > 1e-6 {
 			t.Errorf("%v: %+v, want %+v", cols, got.Test, local.Test)
+		}
+		if strings.Contains(got.Test.Reason, indicatorPrefix) {
+			t.Errorf("%v: the reason names an indicator by its internal name: %s", cols, got.Test.Reason)
 		}
 		if lp.keys > 1000 {
 			t.Errorf("%v: the parts sent %d score keys", cols, lp.keys)
