@@ -79,7 +79,11 @@ func TestLevelPairsReport(t *testing.T) {
 		"| c,d against \\*star\\* | every boundary |",
 		"Benjamini-Hochberg step-up correction (false discovery rate), within the pairs for one category",
 		"Every pair of levels of site (6 pairs) was compared in the chosen model",
-		"are not effects of changing a unit's level")
+		"are not effects of changing a unit's level",
+		"adjusted_p: the p-value adjusted within the predictor's pairs for one category or at one boundary, by the correction column adjustment names (holm, benjamini_hochberg, or none: adjusted_p empty; inference.level_pairs.multiplicity)")
+	if strings.Contains(md, "adjusted by adjustment") {
+		t.Error("report.md's list of files says the p-values are adjusted by adjustment")
+	}
 	csv := string(files["table-level-pairs-y.csv"])
 	hasAll(t, "table-level-pairs-y.csv", csv,
 		"predictor,kind,change,category,boundary,estimate,std_error,z,p,adjusted_p,adjustment,low_95,high_95,df\n",
