@@ -121,6 +121,7 @@ func writeNewRows(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	if n := len(nr.Unpredicted); n > 0 {
 		rowsOf = fmt.Sprintf("%d of the %d rows (%d not predicted, below)", nr.Rows.N-n, nr.Rows.N, n)
 	}
+	probCols, cumCols, linCols, renamed := predictionsColumnsText(or, lvText(level))
 	file := "`" + nr.File + "`"
 	if s := nr.Rows.Sheet; s != nil {
 		file += ", " + mdText(s.Where())
@@ -128,8 +129,11 @@ func writeNewRows(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			file += "; " + mdText(n)
 		}
 	}
-	d.p("The chosen model's predictions for %s of %s (%d rows read, %s) are in `%s`: for each row its line in the file and the file's own columns (so a row label travels with its predictions), the category probabilities (`prob_CATEGORY`), the cumulative probabilities P(y <= m) (`cumprob_CATEGORY`), the expected category (`expected`, categories scored 1 to %d), the most likely category, the linear predictors (`linear_m`) and whether the row lies outside the population the model was fitted to (`outside`, with the reasons in `outside_why`), each number with its delta-method standard error (`se_...`) and its %s interval (`low_%s_...`, `high_%s_...`). The interval of a linear predictor is the number plus and minus %s standard errors. That of a probability is made on its log-odds scale, logit(p) plus and minus the same multiple of the error se/(p(1 − p)), and transformed back, so that it stays between 0 and 1 and is not symmetric about p near either end (empty for a negative probability); that of the expected category likewise on the log-odds scale of its place between 1 and %d. Rows with a negative predicted probability: %d.",
-		rowsOf, file, nr.Rows.RowsRead, skippedNewRows(nr.Rows), predictionsFile(or), len(or.Data.Categories), pct(level), lvText(level), lvText(level), times, len(or.Data.Categories), neg)
+	d.p("The chosen model's predictions for %s of %s (%d rows read, %s) are in `%s`: for each row its line in the file and the file's own columns (so a row label travels with its predictions), the category probabilities (%s), the cumulative probabilities P(y <= m) (%s), the expected category (`expected`, categories scored 1 to %d), the most likely category (`most_likely`), the linear predictors (%s) and whether the row lies outside the population the model was fitted to (`outside`, with the reasons in `outside_why`), each number with its delta-method standard error (`se_...`) and its %s interval (`low_%s_...`, `high_%s_...`). The interval of a linear predictor is the number plus and minus %s standard errors. That of a probability is made on its log-odds scale, logit(p) plus and minus the same multiple of the error se/(p(1 − p)), and transformed back, so that it stays between 0 and 1 and is not symmetric about p near either end (empty for a negative probability); that of the expected category likewise on the log-odds scale of its place between 1 and %d. Rows with a negative predicted probability: %d.",
+		rowsOf, file, nr.Rows.RowsRead, skippedNewRows(nr.Rows), predictionsFile(or), probCols, cumCols, len(or.Data.Categories), linCols, pct(level), lvText(level), lvText(level), times, len(or.Data.Categories), neg)
+	if renamed != "" {
+		d.p("%s", renamed)
+	}
 	if nr.DF != nil {
 		d.p("On imputed data each number was predicted on each of the %d imputed sets by that set's fit and pooled by Rubin's rules: the prediction is the mean over the sets, its standard error the square root of the mean squared delta-method error plus (1 + 1/%d) times the variance between the sets, and each standard error is followed by its Barnard-Rubin degrees of freedom (`df_...`, inf when the sets agree) ; the intervals use t on them. The most likely category is that of the pooled probabilities; a row is flagged negative when a pooled probability or any set's is.",
 			or.Imputed.M, or.Imputed.M)
@@ -273,45 +277,8 @@ func predictionsCSV(r *runner.Result, or *runner.OutcomeResult) []byte {
 	pr := nr.Pred
 	lv := or.Data.Categories
 	J, q := pr.J, pr.J-1
-	cat := csvNames(lv)
-	// On imputed data every standard error is followed by the pooled
-	// degrees of freedom (df_..., inf when infinite).
 	df := nr.DF
-	var head []string
-	head = append(head, "line")
-	pair := func(name string) {
-		head = append(head, name, "se_"+name)
-		if df != nil {
-			head = append(head, "df_"+name)
-		}
-		head = append(head, "low_"+lv95+"_"+name, "high_"+lv95+"_"+name)
-	}
-	for _, c := range cat {
-		pair("prob_" + c)
-	}
-	for m := 0; m < q; m++ {
-		pair("cumprob_" + cat[m])
-	}
-	pair("expected")
-	head = append(head, "most_likely")
-	for m := 1; m <= q; m++ {
-		pair(fmt.Sprintf("linear_%d", m))
-	}
-	head = append(head, "negative", "outside", "outside_why")
-	ours := map[string]bool{}
-	for _, h := range head {
-		ours[h] = true
-	}
-	// The new-rows file's columns follow "line"; a name that clashes
-	// with a prediction column gets the suffix _input.
-	in := csvNames(nr.Rows.Header)
-	for i := range in {
-		for ours[in[i]] {
-			in[i] += "_input"
-		}
-		ours[in[i]] = true
-	}
-	head = append(head[:1], append(in, head[1:]...)...)
+	head, _, in := predictionsColumns(or, lv95)
 	var b bytes.Buffer
 	f := func(x float64) string {
 		if math.IsNaN(x) {
@@ -375,6 +342,90 @@ func predictionsCSV(r *runner.Result, or *runner.OutcomeResult) []byte {
 		fmt.Fprintf(&b, ",%t,%t,%s\n", pr.Negative[i], len(why) > 0, csvCell(strings.Join(why, "; ")))
 	}
 	return b.Bytes()
+}
+
+// predictionsColumnsText names the columns of predictions-OUTCOME.csv that
+// the report's paragraph describes, as the file spells them (a range
+// first to last: `prob_c1` to `prob_c4`), and, when the file spells a
+// category or a column of the new rows otherwise than written, a sentence
+// giving each such name (csvNames), so that no reader looks for a column
+// the file does not have.
+func predictionsColumnsText(or *runner.OutcomeResult, lv95 string) (prob, cum, lin, renamed string) {
+	_, cat, in := predictionsColumns(or, lv95)
+	span := func(first, last string) string {
+		if first == last {
+			return "`" + first + "`"
+		}
+		return "`" + first + "` to `" + last + "`"
+	}
+	J := len(cat)
+	prob = span("prob_"+cat[0], "prob_"+cat[J-1])
+	cum = span("cumprob_"+cat[0], "cumprob_"+cat[J-2])
+	lin = span("linear_1", fmt.Sprintf("linear_%d", J-1))
+	var names []string
+	for i, c := range cat {
+		if l := or.Data.Categories[i]; c != l {
+			names = append(names, fmt.Sprintf("category %s as `%s`", mdText(l), c))
+		}
+	}
+	for i, c := range in {
+		if l := or.NewRows.Rows.Header[i]; c != l {
+			names = append(names, fmt.Sprintf("column %s of the new rows as `%s`", mdText(l), c))
+		}
+	}
+	if len(names) > 0 {
+		renamed = "The file's column names hold only letters, digits and _ (any other character becomes _, a name that starts with a digit gets a c before it, a repeated name a number after it, and a column of the new rows named as a prediction column _input), so it writes " + strings.Join(names, ", ") + "."
+	}
+	return prob, cum, lin, renamed
+}
+
+// predictionsColumns gives the header of predictions-OUTCOME.csv (line,
+// the new-rows file's columns, then the predictions), the category names
+// as its columns spell them and the new-rows file's column names as it
+// writes them (csvNames; a name that clashes with a prediction column
+// gets the suffix _input).
+func predictionsColumns(or *runner.OutcomeResult, lv95 string) (head, cat, in []string) {
+	nr := or.NewRows
+	q := nr.Pred.J - 1
+	cat = csvNames(or.Data.Categories)
+	// On imputed data every standard error is followed by the pooled
+	// degrees of freedom (df_..., inf when infinite).
+	df := nr.DF
+	head = append(head, "line")
+	pair := func(name string) {
+		head = append(head, name, "se_"+name)
+		if df != nil {
+			head = append(head, "df_"+name)
+		}
+		head = append(head, "low_"+lv95+"_"+name, "high_"+lv95+"_"+name)
+	}
+	for _, c := range cat {
+		pair("prob_" + c)
+	}
+	for m := 0; m < q; m++ {
+		pair("cumprob_" + cat[m])
+	}
+	pair("expected")
+	head = append(head, "most_likely")
+	for m := 1; m <= q; m++ {
+		pair(fmt.Sprintf("linear_%d", m))
+	}
+	head = append(head, "negative", "outside", "outside_why")
+	ours := map[string]bool{}
+	for _, h := range head {
+		ours[h] = true
+	}
+	// The new-rows file's columns follow "line"; a name that clashes
+	// with a prediction column gets the suffix _input.
+	in = csvNames(nr.Rows.Header)
+	for i := range in {
+		for ours[in[i]] {
+			in[i] += "_input"
+		}
+		ours[in[i]] = true
+	}
+	head = append(head[:1], append(in, head[1:]...)...)
+	return head, cat, in
 }
 
 // csvNames turns labels into header names a program can use without
