@@ -171,8 +171,9 @@ func writePredictionPanel(d *doc, r *runner.Result, or *runner.OutcomeResult, fi
 	head = append(head, "Negative?")
 	var rows [][]string
 	neg := 0
-	for i, x := range xs {
-		row := []string{pf.Label(x)}
+	labels := pf.Labels(xs)
+	for i := range xs {
+		row := []string{labels[i]}
 		for j := 0; j < pred.J; j++ {
 			row = append(row, fmt.Sprintf("%s (%s)", numfmt.Prob(pred.Prob[i*pred.J+j]), numfmt.Prob(pred.SE[i*pred.J+j])))
 		}
@@ -269,10 +270,7 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 		b.SetGlobalOptions(append(fr.opts(),
 			charts.WithXAxisOpts(opts.XAxis{Name: axisName(pf.axis), Type: "category"}),
 			charts.WithYAxisOpts(opts.YAxis{Name: "probability", Type: "value", Max: 1}))...)
-		var labels []string
-		for _, x := range xs {
-			labels = append(labels, pf.Label(x))
-		}
+		labels := pf.Labels(xs)
 		b.SetXAxis(labels)
 		fig.xNames, fig.yMax = labels, 1
 		bottom := make([]float64, len(xs))

@@ -510,11 +510,20 @@ func predictedCSV(r *runner.Result, or *runner.OutcomeResult, lv string) (kind, 
 			return "", "", nil, nil, false
 		}
 		focus, held = pf.focus, pf.HeldShort()
-		for i, x := range xs {
+		// The focus's values as the data file holds numbers (csvNum), so
+		// that each row names the point it was predicted at; levels as
+		// the report shows them.
+		labels := pf.Labels(xs)
+		if !pf.Categorical {
+			for i, x := range xs {
+				labels[i] = csvNum(x)
+			}
+		}
+		for i := range xs {
 			for j := 0; j < pred.J; j++ {
 				pr, se := pred.Prob[i*pred.J+j], pred.SE[i*pred.J+j]
 				lo, hi := fit.ProbInterval(pr, se, z)
-				row := []string{pf.Label(x), or.Data.Categories[j], csvNum(pr), csvNum(se), csvNum(lo), csvNum(hi)}
+				row := []string{labels[i], or.Data.Categories[j], csvNum(pr), csvNum(se), csvNum(lo), csvNum(hi)}
 				if by != "" {
 					row = append([]string{p.level}, row...)
 				}

@@ -11,6 +11,8 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"ordplan/render/numfmt"
 )
 
 // TestTableFiles: every table file of the golden run is CSV with one
@@ -473,5 +475,80 @@ rules:
 	golden := outputsOf(t, runPlan(t, goldenPlan, 2))
 	if md := string(golden["report.md"]); strings.Contains(md, "per parameter), fewer than") {
 		t.Errorf("the golden report speaks of few observations per parameter")
+	}
+}
+
+// TestPredictionGridReadsAlike: a focus predictor on a scale of its own
+// (the golden data's age as 0.0731 age - 3.3436, every value with several
+// decimals) is shown in the report's table of predictions with one number
+// of decimals, numfmt.Spaced of the grid, its ends the data's smallest and
+// largest values rounded so; the CSV of predictions keeps the grid's
+// values as the data file's numbers are written (csvNum), so that each
+// row names the point it was predicted at, and its probabilities are the
+// table's.
+func TestPredictionGridReadsAlike(t *testing.T) {
+	b, err := os.ReadFile(filepath.Join("testdata", "data", "small.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	recs, err := csv.NewReader(bytes.NewReader(b)).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, r := range recs[1:] {
+		if r[3] == "" {
+			continue
+		}
+		age, err := strconv.ParseFloat(r[3], 64)
+		if err != nil {
+			t.Fatal(err)
+		}
+		v, _ := strconv.ParseFloat(strconv.FormatFloat(0.0731*age-3.3436, 'f', 4, 64), 64)
+		r[3] = strconv.FormatFloat(v, 'f', -1, 64)
+		lo, hi = math.Min(lo, v), math.Max(hi, v)
+	}
+	dir := t.TempDir()
+	var buf bytes.Buffer
+	w := csv.NewWriter(&buf)
+	if err := w.WriteAll(recs); err != nil {
+		t.Fatal(err)
+	}
+	data := filepath.Join(dir, "scaled.csv")
+	if err := os.WriteFile(data, buf.Bytes(), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	src := goldenWith(t, "")
+	src = regexp.MustCompile(`file: .*small\.csv`).ReplaceAllString(src, "file: "+data)
+	files := renderSource(t, dir, src, 1)
+	grid := make([]float64, tablePoints)
+	for i := range grid {
+		grid[i] = lo + (hi-lo)*float64(i)/float64(tablePoints-1)
+	}
+	grid[tablePoints-1] = hi
+	want := numfmt.Spaced(grid)
+	md := string(files["report.md"])
+	i := strings.Index(md, "Predicted probabilities by age")
+	if i < 0 {
+		t.Fatal("report.md has no table of predictions")
+	}
+	rows := regexp.MustCompile(`\n\| (-?[0-9.]+) \| ([0-9.]+) \(`).FindAllStringSubmatch(md[i:], tablePoints)
+	var got []string
+	for _, r := range rows {
+		got = append(got, r[1])
+	}
+	if strings.Join(got, " ") != strings.Join(want, " ") || !strings.Contains(want[0], ".") {
+		t.Errorf("the table's ages %v, want %v", got, want)
+	}
+	preds, err := csv.NewReader(bytes.NewReader(files["table-predicted-safety.csv"])).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	first, last := preds[1], preds[len(preds)-1]
+	if first[0] != strconv.FormatFloat(lo, 'g', 12, 64) || last[0] != strconv.FormatFloat(hi, 'g', 12, 64) {
+		t.Errorf("the CSV's ages run from %s to %s, want %g to %g", first[0], last[0], lo, hi)
+	}
+	if p, _ := strconv.ParseFloat(first[2], 64); len(rows) == 0 || strconv.FormatFloat(p, 'f', 4, 64) != rows[0][2] {
+		t.Errorf("the CSV's first probability %s, the table's %v", first[2], rows)
 	}
 }

@@ -184,13 +184,19 @@ func (pf *Profile) Grid(points int) []float64 {
 	return out
 }
 
-// Label writes one grid value: the level of a categorical focus, else the
-// number.
-func (pf *Profile) Label(x float64) string {
+// Labels writes the values of a grid (Grid) for a reader: the levels of
+// a categorical focus, else the numbers with one number of decimals
+// (numfmt.Spaced), so that a table or a chart's labels read alike; the
+// predictions stay made at the values themselves.
+func (pf *Profile) Labels(xs []float64) []string {
 	if pf.Categorical {
-		return pf.or.Design.Sources[pf.s].Cat.Levels[int(x)]
+		out := make([]string, len(xs))
+		for i, x := range xs {
+			out[i] = pf.or.Design.Sources[pf.s].Cat.Levels[int(x)]
+		}
+		return out
 	}
-	return numfmt.Num(x)
+	return numfmt.Spaced(xs)
 }
 
 // Rows gives the design rows (and offsets, nil when none) at the focus

@@ -128,6 +128,35 @@ func Ratios(x ...float64) []string {
 	return out
 }
 
+// Spaced formats evenly spaced values, a grid from the smallest to the
+// largest (the values at which the report predicts), with one number of
+// decimals: enough that the step between neighbours shows three
+// significant digits (18.0, 29.2, 40.3 for a step of 11.17; -2.024,
+// -1.172 for 0.852), at most 12. One value, values of 1e9 or more, a step
+// of 0 or not finite: each as Num.
+func Spaced(xs []float64) []string {
+	out := make([]string, len(xs))
+	step := math.Inf(1)
+	big := false
+	for i, x := range xs {
+		if i > 0 {
+			step = min(step, math.Abs(x-xs[i-1]))
+		}
+		big = big || !(math.Abs(x) < 1e9)
+	}
+	if len(xs) < 2 || big || !(step > 0) || math.IsInf(step, 0) {
+		for i, x := range xs {
+			out[i] = Num(x)
+		}
+		return out
+	}
+	d := min(12, max(0, 2-int(math.Floor(math.Log10(step)))))
+	for i, x := range xs {
+		out[i] = Fixed(x, d)
+	}
+	return out
+}
+
 // Stat formats a test statistic.
 func Stat(x float64) string { return Fixed(x, StatisticDecimals) }
 

@@ -193,3 +193,34 @@ func TestSummary(t *testing.T) {
 		}
 	}
 }
+
+// TestSpaced: a grid of values is written with one number of decimals,
+// enough for three significant digits of its step, whatever the ends
+// (an integer end reads 18.0 beside 29.2); what has no step is as Num.
+func TestSpaced(t *testing.T) {
+	grid := func(lo, hi float64, n int) []float64 {
+		out := make([]float64, n)
+		for i := range out {
+			out[i] = lo + (hi-lo)*float64(i)/float64(n-1)
+		}
+		out[n-1] = hi
+		return out
+	}
+	for _, c := range []struct {
+		x    []float64
+		want string
+	}{
+		{grid(18, 85, 7), "18.0 29.2 40.3 51.5 62.7 73.8 85.0"},
+		{grid(-2.0236712, 3.0901234, 7), "-2.024 -1.171 -0.319 0.533 1.386 2.238 3.090"},
+		{grid(0, 1000, 5), "0 250 500 750 1000"},
+		{grid(1e-6, 4e-6, 4), "0.00000100 0.00000200 0.00000300 0.00000400"},
+		{[]float64{-2.0236712}, "-2.02367"},
+		{[]float64{3, 3}, "3 3"},
+		{[]float64{1e9, 2e9}, "1.0000e+09 2.0000e+09"},
+		{[]float64{0, math.NaN()}, "0 n/a"},
+	} {
+		if got := strings.Join(Spaced(c.x), " "); got != c.want {
+			t.Errorf("Spaced(%v) = %q, want %q", c.x, got, c.want)
+		}
+	}
+}
