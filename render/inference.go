@@ -149,8 +149,13 @@ func writeNotPredicted(d *doc, or *runner.OutcomeResult) {
 	if len(nr.Unpredicted) == 0 {
 		return
 	}
-	d.p("**Not predicted:** %d of the %d rows are not predicted: a term of the model cannot be computed for them (a transformation undefined at the row's value), so the model says nothing of them. The other rows are predicted. In `%s` their predictions are empty and `outside_why` begins with `not predicted:` and the reason; decisions.json's `new_rows_not_predicted` lists every one.",
-		len(nr.Unpredicted), nr.Rows.N, predictionsFile(or))
+	if len(nr.Unpredicted) == 1 {
+		d.p("**Not predicted:** 1 of the %d rows is not predicted: a term of the model cannot be computed for it (a transformation undefined at the row's value), so the model says nothing of it. The other rows are predicted. In `%s` its predictions are empty and `outside_why` begins with `not predicted:` and the reason; decisions.json's `new_rows_not_predicted` lists it.",
+			nr.Rows.N, predictionsFile(or))
+	} else {
+		d.p("**Not predicted:** %d of the %d rows are not predicted: a term of the model cannot be computed for them (a transformation undefined at the row's value), so the model says nothing of them. The other rows are predicted. In `%s` their predictions are empty and `outside_why` begins with `not predicted:` and the reason; decisions.json's `new_rows_not_predicted` lists every one.",
+			len(nr.Unpredicted), nr.Rows.N, predictionsFile(or))
+	}
 	var rows [][]string
 	for _, u := range nr.Unpredicted[:min(len(nr.Unpredicted), newRowsListed)] {
 		rows = append(rows, []string{strconv.Itoa(u.Line), u.Reason})
@@ -203,12 +208,15 @@ func writeNewRowsOutside(d *doc, or *runner.OutcomeResult) {
 		d.p("Every row lies within the population the model was fitted to. %s", checked)
 		return
 	}
-	predicted := "They are predicted all the same, as asked"
+	lie, predicted, them := "rows lie", "They are predicted all the same, as asked", "them"
+	if len(nr.Flagged) == 1 {
+		lie, predicted, them = "rows lies", "It is predicted all the same, as asked", "it"
+	}
 	if len(nr.Unpredicted) > 0 {
 		predicted = "Those a term can be computed for are predicted all the same, as asked"
 	}
-	d.p("**Outside the population fitted:** %d of the %d rows lie outside the population the model was fitted to. %s, but a prediction for a row the plan's subset excludes, or beyond the values of the rows used (extrapolation), rests on the model's form alone, and its interval does not show that; read it with care. The columns `outside` and `outside_why` of `%s` flag them. %s",
-		len(nr.Flagged), nr.Rows.N, predicted, predictionsFile(or), checked)
+	d.p("**Outside the population fitted:** %d of the %d %s outside the population the model was fitted to. %s, but a prediction for a row the plan's subset excludes, or beyond the values of the rows used (extrapolation), rests on the model's form alone, and its interval does not show that; read it with care. The columns `outside` and `outside_why` of `%s` flag %s. %s",
+		len(nr.Flagged), nr.Rows.N, lie, predicted, predictionsFile(or), them, checked)
 	var rows [][]string
 	for _, f := range nr.Flagged[:min(len(nr.Flagged), newRowsListed)] {
 		rows = append(rows, []string{strconv.Itoa(f.Line), strings.Join(f.Reasons, "; ")})

@@ -11,10 +11,11 @@ import (
 // spells them: categories 1, 2, 3 are columns prob_c1 to prob_c3 (a name
 // may not start with a digit), and a column of the new rows whose name
 // holds a space is written with _; the report said prob_CATEGORY, which
-// sent a reader looking for prob_1.
+// sent a reader looking for prob_1. A single row outside the population
+// fitted is said in the singular.
 func TestPredictionColumnsNamedAsWritten(t *testing.T) {
 	dir, src := levelPairsPlan(t, "  predict: new.csv\n")
-	if err := os.WriteFile(filepath.Join(dir, "new.csv"), []byte("row label,site,x\nfirst,north,0.5\nsecond,\"c,d\",1\n"), 0o644); err != nil {
+	if err := os.WriteFile(filepath.Join(dir, "new.csv"), []byte("row label,site,x\nfirst,north,0.5\nsecond,\"c,d\",1000\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
 	files := renderSource(t, dir, src, 0)
@@ -28,6 +29,8 @@ func TestPredictionColumnsNamedAsWritten(t *testing.T) {
 			t.Errorf("predictions-y.csv has no column %s: %s", col, head)
 		}
 	}
+	// One row of two beyond the range of x: the sentence takes the singular.
+	hasAll(t, "report.md", md, "**Outside the population fitted:** 1 of the 2 rows lies outside the population the model was fitted to. It is predicted all the same, as asked, but ", "The columns `outside` and `outside_why` of `predictions-y.csv` flag it.")
 	if strings.Contains(md, "prob_CATEGORY") {
 		t.Error("report.md still names the columns prob_CATEGORY")
 	}

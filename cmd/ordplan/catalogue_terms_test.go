@@ -316,7 +316,7 @@ func termItems(dir string) []badInput {
 					t.Errorf("predictions-y.csv: the row zero has not the header's columns (%v)", err)
 				}
 				rep, err := os.ReadFile(filepath.Join(dir, "T29-out", "report.md"))
-				for _, want := range []string{"**Not predicted:** 1 of the 2 rows are not predicted: a term of the model cannot be computed for them", `| 3 | column "x": log(0) is undefined: the value is not positive |`} {
+				for _, want := range []string{"**Not predicted:** 1 of the 2 rows is not predicted: a term of the model cannot be computed for it", `| 3 | column "x": log(0) is undefined: the value is not positive |`} {
 					if err != nil || !strings.Contains(string(rep), want) {
 						t.Errorf("report.md (%v): want %q", err, want)
 					}
