@@ -84,6 +84,18 @@ func mistakeItems(dir string) []badInput {
 			want: []string{`ordplan fit: --confidence-level is given twice ("0.9", then "0.8"); give each flag once`}},
 		{id: "O14", name: "an unknown flag of ordplan version", args: []string{"version", "--bogus"}, code: 2, lines: true,
 			want: []string{"flag provided but not defined: -bogus", "Run 'ordplan version --help'"}},
+		{id: "O15", name: "an output folder that cannot be made: a file in its path", args: []string{"run", filepath.Join(dir, "O15.yaml"), "--out", filepath.Join(dir, "d.csv", "out")}, code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				if err := os.WriteFile(filepath.Join(dir, id+".yaml"), []byte(goodPlan), 0o644); err != nil {
+					t.Fatal(err)
+				}
+			},
+			want: []string{"ordplan: output folder d.csv/out: cannot write there (mkdir d.csv: not a directory); nothing was computed or written: give --out another folder"},
+			check: func(t *testing.T, dir, out, errs string) {
+				if fi, err := os.Stat(filepath.Join(dir, "d.csv")); err != nil || !fi.Mode().IsRegular() {
+					t.Errorf("the data file d.csv changed: %v", err)
+				}
+			}},
 		{id: "R11", name: "--previous naming a folder whose decisions.json is not an ordplan record", args: []string{"run", "--previous", filepath.Join(dir, "R11-prev")}, plan: goodPlan, code: 1,
 			setup: func(t *testing.T, dir, id string) {
 				os.MkdirAll(filepath.Join(dir, id+"-prev"), 0o755)

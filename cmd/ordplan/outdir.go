@@ -16,6 +16,7 @@ import (
 	"strconv"
 	"strings"
 	"sync"
+	"syscall"
 
 	"ordplan/internal/words"
 	"ordplan/runner"
@@ -87,7 +88,7 @@ func lockOutput(dir string) (*outputLock, error) {
 	for attempt := 0; ; attempt++ {
 		m, err := mkdirAllMade(dir)
 		if err != nil {
-			return nil, fmt.Errorf("output folder: %w", err)
+			return nil, notWritable(dir, err)
 		}
 		for _, d := range m {
 			if !slices.Contains(made, d) {
@@ -100,7 +101,7 @@ func lockOutput(dir string) (*outputLock, error) {
 			continue // the folder was removed by a run that made it and has ended
 		}
 		if err != nil {
-			return nil, fmt.Errorf("output folder %s: cannot open its lock file %s: %w", dir, lockFile, err)
+			return nil, notWritable(dir, err)
 		}
 		if busy, err := tryLock(f); err != nil {
 			holder := ""
@@ -123,6 +124,17 @@ func lockOutput(dir string) (*outputLock, error) {
 		f.WriteAt([]byte("process "+strconv.Itoa(os.Getpid())+" on "+host+"\n"), 0)
 		return &outputLock{f: f, path: path, made: made}, nil
 	}
+}
+
+// notWritable words an error met making the output folder dir or its
+// lock file, the first file a run writes there: the folder, the system's
+// reason, and what to do (O15).
+func notWritable(dir string, err error) error {
+	advice := "give --out another folder"
+	if errors.Is(err, fs.ErrPermission) || errors.Is(err, syscall.EROFS) {
+		advice = "give --out a folder you can write to, or make this one writable"
+	}
+	return fmt.Errorf("output folder %s: cannot write there (%v); nothing was computed or written: %s", dir, err, advice)
 }
 
 // mkdirAllMade makes the folder dir and those above it that do not

@@ -5,11 +5,13 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"io/fs"
 	"os"
 	"os/signal"
 	"path/filepath"
 	"slices"
 	"strings"
+	"syscall"
 	"testing"
 	"time"
 )
@@ -108,6 +110,33 @@ func TestLockOutput(t *testing.T) {
 	os.WriteFile(f, nil, 0o644)
 	if _, err := lockOutput(f); err == nil || !strings.Contains(err.Error(), "not a folder") {
 		t.Errorf("a file as output folder: %v", err)
+	}
+}
+
+// An output folder that cannot be written (a read-only file system, no
+// permission) is named with the system's reason and what to do (O15);
+// the reasons root cannot meet here are made by hand.
+func TestNotWritableSaysWhatToDo(t *testing.T) {
+	for _, c := range []struct {
+		err  error
+		want string
+	}{
+		{&fs.PathError{Op: "open", Path: "o/.ordplan.lock", Err: syscall.EROFS}, "output folder o: cannot write there (open o/.ordplan.lock: read-only file system); nothing was computed or written: give --out a folder you can write to, or make this one writable"},
+		{&fs.PathError{Op: "mkdir", Path: "o", Err: syscall.EACCES}, "output folder o: cannot write there (mkdir o: permission denied); nothing was computed or written: give --out a folder you can write to, or make this one writable"},
+		{&fs.PathError{Op: "mkdir", Path: "o", Err: syscall.ENOTDIR}, "output folder o: cannot write there (mkdir o: not a directory); nothing was computed or written: give --out another folder"},
+	} {
+		if got := notWritable("o", c.err).Error(); got != c.want {
+			t.Errorf("got  %s\nwant %s", got, c.want)
+		}
+	}
+	if os.Geteuid() == 0 {
+		t.Skip("as root every folder is writable: the folder of a user without permission is not tested")
+	}
+	ro := filepath.Join(t.TempDir(), "ro")
+	os.Mkdir(ro, 0o555)
+	_, err := lockOutput(ro)
+	if err == nil || !strings.Contains(err.Error(), "permission denied); nothing was computed or written: give --out a folder you can write to") {
+		t.Errorf("a folder without permission: %v", err)
 	}
 }
 
