@@ -23,7 +23,7 @@ func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	writeFreeSets(d, or)
 	writeModelTable(d, or, sampling)
 	writeOverallFit(d, or)
-	writeTests(d, or)
+	writeTests(d, r.Plan.Models.Backward(), or)
 	writeDecisionLog(d, or)
 	writeStability(d, r, or)
 	writeBoundaryEffects(d, r, or)

@@ -17,7 +17,10 @@ const oneBoundary = "With two categories there is one boundary, so every predict
 // (runner.OutcomeResult.OneBoundary).
 func binary(or *runner.OutcomeResult) bool { return or.OneBoundary() }
 
-func writeTests(d *doc, or *runner.OutcomeResult) {
+// backward is the plan's stage direction: the tests of a backward stage
+// model are headed by the name its models carry (stage_backward), as in
+// every table of models.
+func writeTests(d *doc, backward bool, or *runner.OutcomeResult) {
 	d.h(3, "Tests of the parallel-lines assumption")
 	if binary(or) {
 		d.p("%s The tests the plan asks for were not computed for this outcome.", oneBoundary)
@@ -28,7 +31,8 @@ func writeTests(d *doc, or *runner.OutcomeResult) {
 		d.p("%s", s)
 	}
 	for _, tb := range or.Tests {
-		d.h(4, tb.Approach.String()+", "+tb.Link.String())
+		approach := fit.Model{Comparison: tb.Approach, Backward: backward && tb.Approach == fit.Stage}.ComparisonName()
+		d.h(4, approach+", "+tb.Link.String())
 		var rows [][]string
 		var warned poolingWarnings
 		var fG float64 // G of the tests referred to F on a cluster-robust covariance
@@ -49,7 +53,7 @@ func writeTests(d *doc, or *runner.OutcomeResult) {
 			}
 		}
 		if len(rows) > 0 {
-			d.captioned(fmt.Sprintf("Parallel-lines tests, %s %s", tb.Approach, tb.Link)).table(testHead("Test", pooled), rows)
+			d.captioned(fmt.Sprintf("Parallel-lines tests, %s %s", approach, tb.Link)).table(testHead("Test", pooled), rows)
 		}
 		if fG > 0 {
 			d.p("A Wald test on the cluster-robust covariance shows its statistic W (column Chi-square) and its q restrictions (df); its p-value is that of F = W (G-q)/((G-1) q) on F(q, G-q), G = %s clusters, shown beside its name.", numfmt.Num(fG))
@@ -63,7 +67,7 @@ func writeTests(d *doc, or *runner.OutcomeResult) {
 		}
 		if len(rows) > 0 {
 			d.p("Nested likelihood-ratio tests:")
-			d.captioned(fmt.Sprintf("Nested likelihood-ratio tests, %s %s", tb.Approach, tb.Link)).table(testHead("Restricted within full", pooled), rows)
+			d.captioned(fmt.Sprintf("Nested likelihood-ratio tests, %s %s", approach, tb.Link)).table(testHead("Restricted within full", pooled), rows)
 		}
 		warned.write(d)
 	}
