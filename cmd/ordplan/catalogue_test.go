@@ -2058,6 +2058,23 @@ func catalogue(dir string) (items []badInput) {
 			},
 			args: fitArgs(d("fe.csv"), "--predictors", "a,site|levels=s0/s1/s2/s3/s4/s5", "--covariance", "clustered", "--cluster", "sid"),
 			want: []string{"\nn/a: the standard errors of tau[1], tau[2], site.s1, site.s2, site.s3, site.s4, site.s5 are not estimable under clustered errors: they depend on combinations of the model's columns whose rows all lie in one cluster (clusters \"s0\", \"s1\", \"s2\" and 3 more)", `also the rows of site = s1 (cluster "s1"), site = s2 (cluster "s2"), site = s3 (cluster "s3") and 2 more lie in one cluster each (a cluster's own fixed effect, or a level met in one cluster): the score of such a level's column sums to 0 over its rows at the maximum, so its sum in each cluster is 0 and the cluster-robust standard errors, tests and intervals of its effects have nothing to rest on: the outputs show them as not available (n/a), with the reason; read its estimates only, or give it errors that do not cluster by this column.`}},
+		{id: "W29", name: "sites as fixed effects clustered by site under the few-cluster jackknife: the jackknife of the other parameters, the site effects and thresholds n/a", code: 0,
+			setup: func(t *testing.T, dir, id string) {
+				withColumns(t, dir, "fe.csv", "site,sid", func(i int, _ []string) string { return fmt.Sprintf("s%d,s%d", i%6, i%6) })
+			},
+			args: fitArgs(d("fe.csv"), "--predictors", "a,site|levels=s0/s1/s2/s3/s4/s5", "--covariance", "clustered", "--cluster", "sid", "--few-clusters", "jackknife"),
+			want: []string{"Standard errors  delete-one-cluster jackknife (", "), 6 clusters\n", "\nn/a: the standard errors of tau[1], tau[2], site.s1, site.s2, site.s3, site.s4, site.s5 are not estimable under clustered errors: they depend on combinations of the model's columns whose rows all lie in one cluster (clusters \"s0\", \"s1\", \"s2\" and 3 more)"},
+			check: func(t *testing.T, dir, out, errs string) {
+				// a keeps a jackknife standard error and its t(5) p-value.
+				for _, line := range strings.Split(out, "\n") {
+					if f := strings.Fields(line); len(f) > 3 && f[0] == "a" && (f[2] == "n/a" || f[3] == "n/a") {
+						t.Errorf("a has no jackknife error: %s", line)
+					}
+				}
+				if !strings.Contains(out, "refer to t on G-1 = 5 degrees of freedom") {
+					t.Errorf("the references are not said")
+				}
+			}},
 		{id: "W11", name: "few_clusters without clustered errors", args: []string{"check"},
 			plan: edit("rules:", "few_clusters: jackknife\nrules:"), code: 1,
 			want: []string{`W11.yaml:11:15: few_clusters: jackknife corrects clustered errors, but covariance is "observed": set covariance: clustered with data.cluster naming the cluster column, or remove few_clusters`}},

@@ -3,6 +3,7 @@ package fit
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 	"testing"
 )
@@ -214,9 +215,10 @@ func TestJackknifeRefusesFailedRefit(t *testing.T) {
 	if err == nil || !strings.Contains(err.Error(), `without cluster "c03"`) || !strings.Contains(err.Error(), `has no row in category "4"`) {
 		t.Errorf("empty category: %v", err)
 	}
-	// x2 (0/1) is 1 only in cluster c01: without it x2 is constant, and
-	// its column's rows lie in one cluster (NotEstimable), which refuses
-	// the jackknife before any refit.
+	// x2 (0/1) is 1 only in cluster c01: its column's rows lie in one
+	// cluster (NotEstimable). The jackknife is computed for the others
+	// (TestJackknifeOneClusterColumns) and marks x2 with the sandwich's
+	// reason.
 	d2 := clusteredData(t)
 	cl2 := dealt(d2.N(), G)
 	for i := range cl2 {
@@ -225,9 +227,10 @@ func TestJackknifeRefusesFailedRefit(t *testing.T) {
 		}
 	}
 	r2 := fitOK(t, d2, m)
-	_, _, err = ClusterJackknife(d2, r2, cl2, Options{Workers: 1})
-	if err == nil || !strings.Contains(err.Error(), `without cluster "c01"`) || !strings.Contains(err.Error(), "the standard errors of x2 are not estimable under clustered errors") {
-		t.Errorf("constant predictor: %v", err)
+	_, info2, err := ClusterJackknife(d2, r2, cl2, Options{Workers: 1})
+	if err != nil || info2.NotEstimable == nil || strings.Join(info2.NotEstimable.Parameters, ",") != "x2" ||
+		!strings.Contains(info2.NotEstimable.Reason, "the standard errors of x2 are not estimable under clustered errors") {
+		t.Errorf("constant predictor: %v %+v", err, info2.NotEstimable)
 	}
 	// Separation: the rows with x2 = 1 in the lowest category all lie in
 	// cluster c02; without it x2 = 1 never meets the lowest category, and in
@@ -257,4 +260,150 @@ func dealt(n, G int) []string {
 		out[i] = fmt.Sprintf("c%02d", i%G)
 	}
 	return out
+}
+
+// withColumns is d with the predictors listed (by name) left out and
+// the columns of extra (one value per row each, named by names) added
+// after the others.
+func withColumns(d *Data, drop []string, names []string, extra [][]float64) *Data {
+	K := d.width()
+	var keep []int
+	out := &Data{J: d.J, Categories: d.Categories, Y: d.Y, Weights: d.Weights, Offset: d.Offset}
+	for k, p := range d.Predictors {
+		if !slices.Contains(drop, p) {
+			keep = append(keep, k)
+			out.Predictors = append(out.Predictors, p)
+		}
+	}
+	out.Predictors = append(out.Predictors, names...)
+	for i := range d.Y {
+		for _, k := range keep {
+			out.X = append(out.X, d.X[i*K+k])
+		}
+		for _, c := range extra {
+			out.X = append(out.X, c[i])
+		}
+	}
+	return out
+}
+
+// TestJackknifeOneClusterColumns: with sites as fixed effects and every
+// site a cluster of its own (5 clusters: dummies s1 to s4, the site of
+// cluster c00 the reference), every site effect and the thresholds rest
+// on one cluster each (the thresholds on the reference's: the combination
+// that moves the thresholds and every site effect together moves only its
+// rows), so they are not estimable; the slopes x1, x2, x3 are. Their
+// jackknife equals the same formula on refits made by hand with the usual
+// Fit on the columns each refit can estimate: without cluster c0g (g >= 1)
+// the data less its dummy s_g (0 on every row left), without c00 the data
+// less s1 as well (the other dummies then add up to 1 on every row) — the
+// maximum of the slopes does not depend on which such columns are left
+// out. The same holds for a nonparallel model, where the site effects are
+// one per boundary. Each model's entries of the marked parameters are NaN.
+func TestJackknifeOneClusterColumns(t *testing.T) {
+	base := clusteredData(t)
+	const G = 5
+	clusters := dealt(base.N(), G)
+	names := []string{"s1", "s2", "s3", "s4"}
+	dummies := make([][]float64, len(names))
+	for k := range dummies {
+		dummies[k] = make([]float64, base.N())
+		for i, c := range clusters {
+			if c == fmt.Sprintf("c%02d", k+1) {
+				dummies[k][i] = 1
+			}
+		}
+	}
+	d := withColumns(base, nil, names, dummies)
+	for _, eff := range []Effect{Parallel, Nonparallel} {
+		m := Model{Comparison: Cumulative, Link: Logit, Effects: []Effect{Parallel, Parallel, Parallel, eff, eff, eff, eff}}
+		r := fitOK(t, d, m)
+		V, info, err := ClusterJackknife(d, r, clusters, Options{Workers: 1})
+		if err != nil {
+			t.Fatalf("%s: %v", m.Name(), err)
+		}
+		ne := info.NotEstimable
+		if ne == nil || strings.Join(ne.Clusters, ",") != "c00,c01,c02,c03,c04" {
+			t.Fatalf("%s: not estimable %+v", m.Name(), ne)
+		}
+		P := len(r.Estimates)
+		slopes := map[string]int{}
+		for j, n := range r.ParamNames {
+			if n == "x1" || n == "x2" || n == "x3" {
+				slopes[n] = j
+			} else if !slices.Contains(ne.Parameters, n) {
+				t.Errorf("%s: %s not marked", m.Name(), n)
+			}
+		}
+		if len(slopes) != 3 || len(ne.Parameters) != P-3 {
+			t.Fatalf("%s: slopes %v, marked %v", m.Name(), slopes, ne.Parameters)
+		}
+		// By hand.
+		var est [][]float64
+		for g := 0; g < G; g++ {
+			id := fmt.Sprintf("c%02d", g)
+			var out []int
+			for i, c := range clusters {
+				if c == id {
+					out = append(out, i)
+				}
+			}
+			drop := []string{"s1"}
+			if g > 0 {
+				drop = []string{names[g-1]}
+			}
+			var sub []string
+			var subCols [][]float64
+			for k, n := range names {
+				if !slices.Contains(drop, n) {
+					sub = append(sub, n)
+					subCols = append(subCols, dummies[k])
+				}
+			}
+			dg := withColumns(base, nil, sub, subCols).without(out)
+			mg := Model{Comparison: Cumulative, Link: Logit, Effects: m.Effects[:3+len(sub)]}
+			rg, err := Fit(dg, mg, Options{Workers: 1})
+			if err != nil || !rg.OK() {
+				t.Fatalf("%s without %s: %v %v", m.Name(), id, err, rg)
+			}
+			b := make([]float64, 3)
+			for k, n := range []string{"x1", "x2", "x3"} {
+				b[k] = rg.Estimates[slices.Index(rg.ParamNames, n)]
+			}
+			est = append(est, b)
+		}
+		worst := 0.0
+		for a, na := range []string{"x1", "x2", "x3"} {
+			for c, nc := range []string{"x1", "x2", "x3"} {
+				ma, mc := 0.0, 0.0
+				for _, b := range est {
+					ma += b[a] / G
+					mc += b[c] / G
+				}
+				want := 0.0
+				for _, b := range est {
+					want += float64(G-1) / G * (b[a] - ma) * (b[c] - mc)
+				}
+				got := V[slopes[na]*P+slopes[nc]]
+				worst = math.Max(worst, math.Abs(got-want)/math.Sqrt(V[slopes[na]*P+slopes[na]]*V[slopes[nc]*P+slopes[nc]]))
+			}
+		}
+		t.Logf("%s: marked %v; slopes' jackknife against refits by hand %.3g", m.Name(), ne.Parameters, worst)
+		if !(worst <= 1e-6) {
+			t.Errorf("%s: slopes' jackknife differs from refits by hand by %.3g (relative)", m.Name(), worst)
+		}
+		for j := 0; j < P; j++ {
+			if slices.Contains(ne.Parameters, r.ParamNames[j]) && !math.IsNaN(V[j*P+j]) {
+				t.Errorf("%s: %s variance %g, want NaN", m.Name(), r.ParamNames[j], V[j*P+j])
+			}
+		}
+	} // With constrained predictors the refit that holds the site effects
+	// is not made: the jackknife is refused, naming them and what to do.
+	m := Model{Comparison: Cumulative, Link: Logit, Effects: []Effect{Constrained, Constrained, Parallel, Parallel, Parallel, Parallel, Parallel}}
+	r := fitOK(t, d, m)
+	_, _, err := ClusterJackknife(d, r, clusters, Options{Workers: 1})
+	if err == nil || !strings.HasPrefix(err.Error(), `the delete-one-cluster jackknife is not computed for this model because of tau[1], tau[2], tau[3], s1, s2, s3, s4, whose rows all lie in one cluster ("c00", "c01", "c02" and 2 more): the model constrains predictors`) ||
+		!strings.Contains(err.Error(), "Leave those columns out of the model, give the model errors that do not cluster by this column, or drop the few-cluster correction") {
+		t.Errorf("constrained: %v", err)
+	}
 }

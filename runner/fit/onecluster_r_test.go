@@ -50,8 +50,10 @@ func oneClusterData() (names []string, cols [][]float64) {
 // sandwich, equal to R's by hand (glm's logit scores, rowsum by cluster, A^-1 B A^-1 times
 // G/(G-1) (N-1)/(N-P): common.R); a Wald test of x = z = 0 is made from
 // it, one touching s1 is not computed and says why; a prediction at a
-// reference-site row has an interval, one at a site-1 row has none; the
-// delete-one-cluster jackknife is refused with the same reason.
+// reference-site row has an interval, one at a site-1 row has none. The
+// delete-one-cluster jackknife marks the same four parameters with the
+// same reason and gives tau, x and z R's jackknife by hand (glm refitted
+// without each cluster), with its t(G-1) p-values and F test.
 func TestOneClusterAgainstR(t *testing.T) {
 	dir := workDir(t)
 	names, cols := oneClusterData()
@@ -132,7 +134,60 @@ func TestOneClusterAgainstR(t *testing.T) {
 	if math.IsNaN(pr.SE[0]) || !math.IsNaN(pr.SE[2]) {
 		t.Errorf("prediction errors %v: want a number for the reference site, NaN for site 1", pr.SE)
 	}
-	if _, _, err := fit.ClusterJackknife(d, r, clusters, fit.Options{}); err == nil || !strings.Contains(err.Error(), "are not estimable under clustered errors") {
-		t.Errorf("jackknife: %v", err)
+	// The delete-one-cluster jackknife: tau, x and z against R's by hand
+	// (onecluster.R: glm refitted without each cluster on the columns that
+	// still vary there), the four others not estimable with the same
+	// reason as under the sandwich.
+	J, jinfo, err := fit.ClusterJackknife(d, r, clusters, fit.Options{})
+	if err != nil {
+		t.Fatalf("jackknife: %v", err)
+	}
+	if jinfo.NotEstimable == nil || jinfo.NotEstimable.Reason != ne.Reason {
+		t.Fatalf("jackknife's not estimable: %+v, want the sandwich's %+v", jinfo.NotEstimable, ne)
+	}
+	Rj := vals.Get(t, "oc.jackknife")
+	worst := 0.0
+	for i := 0; i < P; i++ {
+		for j := 0; j < P; j++ {
+			v := J[i*P+j]
+			if i >= 3 || j >= 3 {
+				if !math.IsNaN(v) {
+					t.Errorf("jackknife entry %s, %s: %g, want NaN", r.ParamNames[i], r.ParamNames[j], v)
+				}
+				continue
+			}
+			worst = math.Max(worst, math.Abs(v-Rj[i*3+j])/math.Sqrt(Rj[i*3+i]*Rj[j*3+j]))
+		}
+	}
+	t.Logf("jackknife of tau, x, z against R's glm refits: %.3g (relative)", worst)
+	if !(worst <= 1e-6) {
+		t.Errorf("jackknife of tau, x, z differs from R's glm refits by %.3g (relative)", worst)
+	}
+	rj := *r
+	rj.UseCovariance(J, jinfo)
+	for i, want := range vals.Get(t, "oc.jk_p") {
+		if got := rj.ParamInference(i, 0.95).P; math.Abs(got-want) > 1e-6*want {
+			t.Errorf("%s: jackknife p-value on t(11) %.10g, R's pt %.10g", r.ParamNames[i], got, want)
+		}
+	}
+	for i := 3; i < P; i++ {
+		if inf := rj.ParamInference(i, 0.95); !math.IsNaN(rj.StdErrors[i]) || !math.IsNaN(inf.P) {
+			t.Errorf("%s: jackknife error %g, p %g: want n/a", r.ParamNames[i], rj.StdErrors[i], inf.P)
+		}
+	}
+	h, err = fit.ParseHypothesis("x = z = 0", r.ParamNames)
+	if err != nil {
+		t.Fatal(err)
+	}
+	wj, want := fit.WaldLinear(&rj, h), vals.Get(t, "oc.jk_wald")
+	if !wj.OK || math.Abs(wj.Chi2-want[0]) > 1e-6*want[0] || math.Abs(wj.P-want[1]) > 1e-6*want[1] {
+		t.Errorf("jackknife x = z = 0: %+v, R's W %g, p on F(2, 10) %g", wj, want[0], want[1])
+	}
+	h, err = fit.ParseHypothesis("x = s1", r.ParamNames)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if w := fit.WaldLinear(&rj, h); w.OK || !strings.Contains(w.Reason, "are not estimable under clustered errors") {
+		t.Errorf("jackknife x = s1 was computed or says nothing: %+v", w)
 	}
 }

@@ -266,6 +266,18 @@ const FewClusters = 40
 // predictor's spread missing without the cluster, separation, no
 // convergence) refuses the covariance, naming the cluster and the reason:
 // no estimate stands in for it.
+//
+// Parameters that load on a combination of the model's columns whose rows
+// all lie in one cluster (NotEstimable, as the clustered sandwich finds
+// them) are marked as under the sandwich (info.NotEstimable, with the same
+// reason): without that cluster the log-likelihood is flat along the
+// combination, so the refit cannot estimate them. The other parameters,
+// and every quantity that does not load on such a combination, are the
+// same at every maximum of that refit (they are orthogonal to the flat
+// directions), so their jackknife stands: the refit is made with the
+// flat directions held at the full fit's values (refitFlat), and V's
+// entries for them are the usual jackknife of estimates that every refit
+// identifies.
 func ClusterJackknife(d *Data, r *Result, clusters []string, opt Options) ([]float64, SandwichInfo, error) {
 	info := SandwichInfo{Type: Clustered, Correction: Jackknife}
 	if !r.OK() {
@@ -291,7 +303,8 @@ func ClusterJackknife(d *Data, r *Result, clusters []string, opt Options) ([]flo
 	if G < 2 {
 		return nil, info, fmt.Errorf("the jackknife covariance needs at least 2 clusters, got %d", G)
 	}
-	if err := jackknifeBound(d, r, clusters); err != nil {
+	bound, err := jackknifeBound(d, r, clusters)
+	if err != nil {
 		return nil, info, err
 	}
 	opt.Start = r.Estimates
@@ -309,7 +322,13 @@ func ClusterJackknife(d *Data, r *Result, clusters []string, opt Options) ([]flo
 		if c := sub.emptyCategory(); c >= 0 {
 			return nil, info, why("has no row in category %q", d.categories()[c])
 		}
-		res, err := Fit(sub, r.Model, opt)
+		var res *Result
+		var err error
+		if flat := bound.of(k); flat != nil {
+			res, err = refitFlat(sub, r, flat, opt)
+		} else {
+			res, err = Fit(sub, r.Model, opt)
+		}
 		if err != nil {
 			return nil, info, why("cannot be made (%v)", err)
 		}
@@ -342,6 +361,9 @@ func ClusterJackknife(d *Data, r *Result, clusters []string, opt Options) ([]flo
 	}
 	info.DF = float64(G - 1)
 	info.Formula = "(G-1)/G sum over clusters g of (b_(g) - b_mean)(b_(g) - b_mean)', b_(g) the estimates refitted without cluster g"
+	if bound != nil {
+		info.bound, info.NotEstimable = markNotEstimable(V, r.ParamNames, bound.dirs, bound.ids, bound.minv)
+	}
 	return V, info, nil
 }
 
@@ -387,22 +409,151 @@ func (d *Data) emptyCategory() int {
 	return slices.Index(seen, false)
 }
 
-// jackknifeBound refuses the delete-one-cluster jackknife of fit r when
-// some of its parameters rest on columns whose rows all lie in one cluster
-// (NotEstimable): the refit without that cluster cannot estimate them, so
-// no jackknife covariance is computed, and the reason says which.
-func jackknifeBound(d *Data, r *Result, clusters []string) error {
+// jackknifeBound finds the combinations of fit r's parameters whose rows
+// all lie in one cluster (oneClusterCombinations at r's estimates; nil
+// when there are none), which ClusterJackknife marks not estimable and
+// holds fixed in the refit without their cluster. Such a refit is made
+// only for a model without constrained predictors; with them the
+// jackknife is refused, naming the parameters and what can be done.
+func jackknifeBound(d *Data, r *Result, clusters []string) (*clusterBound, error) {
 	ly, err := newLayout(r.Model, d.J, d.Predictors)
 	if err != nil {
-		return err
+		return nil, err
 	}
 	pr := newProblem(d.design(), r.Model, ly, 0)
 	dirs, ids, minv, err := oneClusterCombinations(pr, r.Estimates, clusters, d.weight)
 	if err != nil || len(dirs) == 0 {
-		return err
+		return nil, err
 	}
-	V := make([]float64, len(r.Estimates)*len(r.Estimates))
-	_, ne := markNotEstimable(V, r.ParamNames, dirs, ids, minv)
-	return fmt.Errorf("%s; the delete-one-cluster jackknife refits the model without each cluster, and without cluster %q the refit cannot estimate them, so it is not computed",
-		ne.Reason, ne.Clusters[0])
+	if len(ly.groups) > 0 {
+		V := make([]float64, len(r.Estimates)*len(r.Estimates))
+		_, ne := markNotEstimable(V, r.ParamNames, dirs, ids, minv)
+		return nil, jackknifeRefusal(ne, "the model constrains predictors to a common scale, whose refit without such a cluster the program does not make")
+	}
+	return &clusterBound{dirs: dirs, ids: ids, minv: minv}, nil
+}
+
+// jackknifeRefusal is the error of a delete-one-cluster jackknife refused
+// because of the parameters ne names: which they are, why (the reason
+// of NotEstimable and what stops their refit), and what the user can do.
+func jackknifeRefusal(ne *NotEstimable, why string) error {
+	return fmt.Errorf("the delete-one-cluster jackknife is not computed for this model because of %s, whose rows all lie in one cluster (%s): %s. "+
+		"Leave those columns out of the model, give the model errors that do not cluster by this column, or drop the few-cluster correction (the clustered sandwich then shows them as n/a and the others with their errors)",
+		listSome(ne.Parameters, 8), listSome(quoteAll(ne.Clusters), 3), why)
+}
+
+// of is the one-cluster combinations of b that lie in cluster id (nil
+// when none, or b nil).
+func (b *clusterBound) of(id string) [][]float64 {
+	if b == nil {
+		return nil
+	}
+	var out [][]float64
+	for k, c := range b.ids {
+		if c == id {
+			out = append(out, b.dirs[k])
+		}
+	}
+	return out
+}
+
+// refitFlat refits r's model (no constrained predictors) on d, the rows
+// outside a cluster whose one-cluster combinations are flat: the
+// log-likelihood of d does not change along them. Each is held at the
+// full fit's value by a quadratic term, -lambda/2 (u'(theta - b))^2 with u
+// the unit direction and b r's estimates, which does not move the
+// maximum of the directions it does not touch: from any maximum of d's
+// log-likelihood a move along the flat directions reaches a point where
+// every such term is 0. Once the iterations end, the check that the
+// log-likelihood itself is at a maximum there (its Newton decrement, with
+// the held information, at most 1e-8 |LL|) confirms that the directions
+// were flat; else the refit is not usable and says why. The result's
+// covariance is not read.
+func refitFlat(d *Data, r *Result, flat [][]float64, opt Options) (*Result, error) {
+	if err := d.validateRows(true); err != nil {
+		return nil, err
+	}
+	ly, err := newLayout(r.Model, d.J, d.Predictors)
+	if err != nil {
+		return nil, err
+	}
+	if opt.MaxIter <= 0 {
+		opt.MaxIter = 200
+	}
+	P := len(r.Estimates)
+	pr := newProblem(d.design(), r.Model, ly, opt.Workers)
+	base := pr.evaluator(false)
+	units := make([][]float64, len(flat))
+	for k, v := range flat {
+		n := math.Sqrt(dot(v, v))
+		units[k] = make([]float64, P)
+		for j := range v {
+			units[k][j] = v[j] / n
+		}
+	}
+	b0 := r.Estimates
+	// lambda: the mean of the information's diagonal at the start, so
+	// that the held directions are as well conditioned as the others.
+	lambda := 0.0
+	if a := base(b0, 2); !a.bad {
+		for j := 0; j < P; j++ {
+			lambda += math.Abs(a.H[j*P+j]) / float64(P)
+		}
+	}
+	if !(lambda > 0) || math.IsInf(lambda, 0) {
+		lambda = 1
+	}
+	held := func(th []float64) []float64 {
+		c := make([]float64, len(units))
+		for k, u := range units {
+			for j := range u {
+				c[k] += u[j] * (th[j] - b0[j])
+			}
+		}
+		return c
+	}
+	ev := func(th []float64, order int) evalOut {
+		a := base(th, order)
+		if a.bad {
+			return a
+		}
+		c := held(th)
+		for k, u := range units {
+			a.ll -= lambda / 2 * c[k] * c[k]
+			if order >= 1 {
+				a.g = slices.Clone(a.g)
+				for j := range u {
+					a.g[j] -= lambda * c[k] * u[j]
+				}
+			}
+			if order >= 2 {
+				a.H = slices.Clone(a.H)
+				for i := range u {
+					for j := range u {
+						a.H[i*P+j] -= lambda * u[i] * u[j]
+					}
+				}
+			}
+		}
+		return a
+	}
+	st := newtonLoop(b0, opt.MaxIter, ev)
+	src := localSource(d, pr, nil, opt.Sampling)
+	src.loglik = ev
+	res, err := finish(src, r.Model, ly, st, opt)
+	if err != nil || !res.OK() || !res.Converged {
+		return res, err
+	}
+	// The log-likelihood's own score there, against the held information.
+	g := slices.Clone(st.grad)
+	c := held(st.theta)
+	for k, u := range units {
+		for j := range u {
+			g[j] += lambda * c[k] * u[j]
+		}
+	}
+	if _, dec, pd := newtonDirection(st.hess, g); !pd || dec > 1e-8*math.Max(1, math.Abs(st.ll)) {
+		res.fail(StatusNotConverged, "the parameters it cannot estimate do not leave the log-likelihood flat without the cluster, so the others have no maximum of their own")
+	}
+	return res, nil
 }

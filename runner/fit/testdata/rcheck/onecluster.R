@@ -14,3 +14,21 @@ sgn <- c(1, -1, -1, -1, -1, -1, -1)
 b <- binfit(Z, sgn, as.numeric(d$y == 1), rep(1, nrow(d)), "logit")
 out("oc.theta", b$theta)
 out("oc.clustered", sandwich(b, FALSE, d$g))
+# The delete-one-cluster jackknife of tau, x and z by hand: glm refitted
+# without each cluster in turn on the columns that still vary there (s1
+# and xs1 are 0 on every row left without cluster 1, s2 without cluster 2,
+# s3 without cluster 3: glm cannot estimate them, and they do not enter
+# tau, x or z's maximum), V = (G-1)/G sum_g (t_g - t_mean)(t_g - t_mean)'
+# over those three, with its references (printclusterwald: x and z).
+e <- as.numeric(d$y == 1)
+ids <- sort(unique(d$g))
+Th <- t(sapply(ids, function(g) {
+  k <- d$g != g
+  keep <- which(colSums(abs(Z[k, , drop = FALSE])) > 0)
+  binfit(Z[k, keep, drop = FALSE], sgn[keep], e[k], rep(1, sum(k)), "logit")$theta[1:3]
+}))
+G <- length(ids)
+Dv <- sweep(Th, 2, colMeans(Th))
+Vj <- (G - 1) / G * crossprod(Dv)
+out("oc.jackknife", Vj)
+printclusterwald("oc.jk", b$theta[1:3], Vj, G, 2:3)
