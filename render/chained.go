@@ -119,14 +119,63 @@ func imputationMethods(im *runner.ImputedRun, mt *data.MissingTable, dz *design.
 			fallback = fmt.Sprintf(" Imputation models with perfect prediction were refitted with weighted pseudo-observations %s.", c.cite("augment"))
 		}
 	}
-	by := ""
+	kept, used := ch.RowsIncomplete, im.Rows
+	var about []string
 	if mt != nil {
-		if w := missingByColumnWords(mt); w != "" {
-			by = " (missing by column: " + w + ")"
+		imputed := map[string]bool{}
+		for _, m := range ch.Models {
+			imputed[m.Column] = true
+		}
+		var by string
+		kept, used, by = keptMissing(mt, imputed)
+		if used != im.Rows {
+			// Frequency weights: the sets hold the units the weights count.
+			about = append(about, fmt.Sprintf("%d of the %d units the frequency weights count, each imputed on its own", ch.RowsIncomplete, im.Rows))
+		}
+		if by != "" {
+			about = append(about, "missing by column: "+by)
 		}
 	}
+	by := ""
+	if len(about) > 0 {
+		by = " (" + strings.Join(about, "; ") + ")"
+	}
 	return fmt.Sprintf("The %d rows (%s of %d) with a missing value in the outcome or a predictor were kept%s, and their missing values were multiply imputed by chained equations %s: %d imputed sets, each after %d iterations (seed %d), with %s, every model given the outcome and the other columns and its parameters drawn from their approximate posterior; transformations and interactions were computed from the imputed columns.%s%s The imputation assumes that values are missing at random given these columns.%s %s",
-		ch.RowsIncomplete, sharePct(ch.RowsIncomplete, im.Rows), im.Rows, by, sources, ch.Sets, ch.Iterations, ch.Seed, strings.Join(models, "; "), fallback, mainEffectsCaution(dz), clusterCaution(cluster), pool())
+		kept, sharePct(kept, used), used, by, sources, ch.Sets, ch.Iterations, ch.Seed, strings.Join(models, "; "), fallback, mainEffectsCaution(dz), clusterCaution(cluster), pool())
+}
+
+// keptMissing counts, from the missing-value patterns of mt, the rows
+// that were kept and imputed: those whose missing columns are all among
+// the imputed ones (a row missing a weight, offset, cluster or a column
+// only the subset reads was dropped). It gives those rows, the rows used
+// (the table's rows less the dropped ones) and the imputed columns' counts
+// over the kept rows in words, as missingByColumnWords writes them.
+func keptMissing(mt *data.MissingTable, imputed map[string]bool) (kept, used int, byColumn string) {
+	count := make([]int, len(mt.Columns))
+	used = mt.Rows
+	for _, p := range mt.Patterns {
+		fills := true
+		for j, miss := range p.Missing {
+			fills = fills && (!miss || imputed[mt.Columns[j]])
+		}
+		if !fills {
+			used -= p.Rows
+			continue
+		}
+		kept += p.Rows
+		for j, miss := range p.Missing {
+			if miss {
+				count[j] += p.Rows
+			}
+		}
+	}
+	var cols []string
+	for j, c := range mt.Columns {
+		if count[j] > 0 {
+			cols = append(cols, fmt.Sprintf("%s %d (%s)", mdCode(c), count[j], sharePct(count[j], used)))
+		}
+	}
+	return kept, used, words.AndList(cols)
 }
 
 // mainEffectsCaution warns, when the analysis has interactions or

@@ -231,3 +231,58 @@ rules:
 		t.Errorf("decisions.json lacks the count:\n%s", files["decisions.json"])
 	}
 }
+
+// TestChainedMethodsCountRowsKept: with frequency weights some of them
+// missing, the Methods draft counts the rows imputation kept among the
+// rows used (those missing a weight were dropped, as the sentence before
+// says), the units the weights count apart, and lists by column only the
+// imputed columns over the kept rows; every count is tallied here from
+// the file the test wrote.
+func TestChainedMethodsCountRowsKept(t *testing.T) {
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(8, 4))
+	var b strings.Builder
+	b.WriteString("y,x1,x2,w\n")
+	used, kept, keptX2, units, unitsKept := 0, 0, 0, 0, 0
+	for i := 0; i < 240; i++ {
+		y, x1, x2 := testsurvey.Report.Row(rng)
+		x2s, w := fmt.Sprintf("%.5f", x2), 1+rng.IntN(3)
+		ws := fmt.Sprint(w)
+		missX2, missW := rng.Float64() < 0.2, rng.Float64() < 0.1
+		if missX2 {
+			x2s = ""
+		}
+		if missW {
+			ws = ""
+		}
+		if !missW {
+			used++
+			units += w
+			if missX2 {
+				kept++
+				keptX2++
+				unitsKept += w
+			}
+		}
+		fmt.Fprintf(&b, "%d,%.5f,%s,%s\n", y, x1, x2s, ws)
+	}
+	os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
+	src := `version: 1
+title: imputed here
+seed: 5
+data: {file: d.csv, missing: impute, weights: w, imputation: {sets: 3, iterations: 2}}
+outcomes: [{column: y}]
+predictors: [x1, x2]
+models: {approaches: [cumulative], effects: [parallel]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: bic}
+`
+	md := string(renderSource(t, dir, src, 2)["report.md"])
+	want := fmt.Sprintf("The %d rows (%s of %d) with a missing value in the outcome or a predictor were kept (%d of the %d units the frequency weights count, each imputed on its own; missing by column: `x2` %d (%s)), and",
+		kept, sharePct(kept, used), used, unitsKept, units, keptX2, sharePct(keptX2, used))
+	hasAll(t, "report.md", md, want)
+	if regexp.MustCompile("missing by column: [^)]*`w`").MatchString(md) {
+		t.Error("the Methods draft lists the weights among the imputed columns")
+	}
+}
