@@ -140,6 +140,13 @@ func writeDescriptives(d *doc, or *runner.OutcomeResult, sampling bool) {
 			head = append(head, l)
 		}
 		head = append(head, "All")
+		var counts [][]float64
+		for _, s := range ds {
+			if s.Counts {
+				counts = append(counts, s.Ones, s.N)
+			}
+		}
+		count := countText(counts, nil) // weighted counts to one decimal, all alike
 		var rows [][]string
 		for _, s := range ds {
 			row := []string{s.Label}
@@ -147,9 +154,9 @@ func writeDescriptives(d *doc, or *runner.OutcomeResult, sampling bool) {
 				missing := s.N[c] != total[c]
 				switch {
 				case s.Counts && missing:
-					row = append(row, fmt.Sprintf("%s of %s (%s%%)", numfmt.Num(s.Ones[c]), numfmt.Num(s.N[c]), numfmt.Fixed(100*s.Mean[c], 1)))
+					row = append(row, fmt.Sprintf("%s of %s (%s%%)", count(s.Ones[c]), count(s.N[c]), numfmt.Fixed(100*s.Mean[c], 1)))
 				case s.Counts:
-					row = append(row, fmt.Sprintf("%s (%s%%)", numfmt.Num(s.Ones[c]), numfmt.Fixed(100*s.Mean[c], 1)))
+					row = append(row, fmt.Sprintf("%s (%s%%)", count(s.Ones[c]), numfmt.Fixed(100*s.Mean[c], 1)))
 				case missing:
 					row = append(row, fmt.Sprintf("%s (%s), %s rows", numfmt.Summary(s.Mean[c]), numfmt.Summary(s.SD[c]), numfmt.Num(s.N[c])))
 				default:

@@ -226,7 +226,8 @@ func writeGoodnessOfFit(d *doc, or *runner.OutcomeResult) {
 // goodness-of-fit table: whole numbers as they are; otherwise (sums of
 // sampling weights, or on imputed data the mean of the sets' counts) every
 // one with one decimal, as the expected counts beside them, so that 59.6968
-// and 59.7 do not sit side by side.
+// and 59.7 do not sit side by side. The outcome's category counts and the
+// counts of the predictors by outcome category take it too.
 func countText(counts [][]float64, sizes []float64) func(float64) string {
 	whole := !slices.ContainsFunc(sizes, func(v float64) bool { return v != math.Trunc(v) })
 	for _, row := range counts {

@@ -91,20 +91,22 @@ func writeData(d *doc, or *runner.OutcomeResult, sampling bool, cluster string, 
 		}
 		d.p("The counts below, and the predictors by outcome category, describe the observed values of the original data %s (%s observations with the outcome observed, %s with it missing), not an imputed set; the outcome's shares are of the observed outcomes, and each predictor is summarized over the rows where it is observed too.",
 			mdCode(ob.File), numfmt.Count(total), numfmt.Count(missing))
+		count := countText([][]float64{ob.Counts, {missing}}, nil)
 		for j, l := range ob.Categories {
 			share := "0.0%"
 			if total > 0 {
 				share = numfmt.Fixed(100*ob.Counts[j]/total, 1) + "%"
 			}
-			rows = append(rows, []string{l, numfmt.Num(ob.Counts[j]), share})
+			rows = append(rows, []string{l, count(ob.Counts[j]), share})
 		}
 		if missing > 0 {
-			rows = append(rows, []string{"(missing, imputed)", numfmt.Num(missing), ""})
+			rows = append(rows, []string{"(missing, imputed)", count(missing), ""})
 		}
 		d.captioned("Outcome categories, observed values of the original data").table([]string{"Category", "Count", "Share"}, rows)
 	} else {
+		count := countText([][]float64{ds.Counts}, nil)
 		for j, l := range ds.Categories {
-			rows = append(rows, []string{l, numfmt.Num(ds.Counts[j]), numfmt.Fixed(100*ds.Counts[j]/ds.NObs(), 1) + "%"})
+			rows = append(rows, []string{l, count(ds.Counts[j]), numfmt.Fixed(100*ds.Counts[j]/ds.NObs(), 1) + "%"})
 		}
 		d.captioned("Outcome categories").table([]string{"Category", "Count", "Share"}, rows)
 	}
