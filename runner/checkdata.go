@@ -1,6 +1,7 @@
 package runner
 
 import (
+	"errors"
 	"fmt"
 	"slices"
 	"strings"
@@ -25,7 +26,7 @@ func CheckData(p *plan.Plan) ([]string, error) {
 	var scopes []plan.ParameterScope
 	var warnings []string
 	for i, r := range a.Outcomes {
-		ld, err := a.Load(r)
+		ld, err := a.checkLoad(r)
 		if err != nil {
 			return nil, err
 		}
@@ -86,6 +87,41 @@ func CheckData(p *plan.Plan) ([]string, error) {
 		}
 	}
 	return warnings, nil
+}
+
+// checkLoad reads outcome r's data for check: its complete rows (Load).
+// With data.missing: impute, run reads no complete rows but imputes the
+// rows kept: so check first imputes them as run does, into two sets after
+// one iteration (the plan's models and seed; chainedSets), stopping where
+// run's imputation would (a column missing in every row, I9); and where
+// no row is complete, which run imputes (I24), it checks the design on
+// the first imputed set, as run makes it, rather than refusing the data
+// as if their incomplete rows were dropped.
+func (a *Analysis) checkLoad(r Reading) (*Loaded, error) {
+	if !a.Imputes() {
+		return a.Load(r)
+	}
+	quick := *a
+	im := *a.Imputation
+	im.Sets, im.Iterations, im.WriteSets, im.ConvergenceTable = 2, 1, false, false
+	quick.Imputation = &im
+	run, sets, dz, err := chainedSets(&quick, r, Options{})
+	switch {
+	case errors.Is(err, errNothingToImpute):
+		return a.Load(r)
+	case err != nil:
+		return nil, err
+	case run.observed.N > run.observed.Incomplete:
+		return a.Load(r)
+	}
+	ds := *sets[0]
+	if err := a.Clusters(r, &ds); err != nil {
+		return nil, err
+	}
+	if err := a.checkPanels(r, run.observed, dz); err != nil {
+		return nil, err
+	}
+	return &Loaded{Data: &ds, Design: dz, FitData: run.Sets[0]}, nil
 }
 
 // rowsFitted are the rows the fits of outcome r use, as run counts them
@@ -189,6 +225,9 @@ func NotCheckedWithoutData(p *plan.Plan) []string {
 	}
 	if p.Data.Imputed != nil {
 		out = append(out, "data.imputed: the imputed sets against the data file (their rows, columns and the values the data observe)")
+	}
+	if p.Data.Imputes() {
+		out = append(out, "data.missing: impute: the columns imputed (none missing in every row), imputed into two sets after one iteration as run imputes them, and the design on an imputed set where no row is complete")
 	}
 	if len(p.Dictionary) > 0 {
 		out = append(out, "dictionary: the data's values against the declared ranges, values and missing-value codes")

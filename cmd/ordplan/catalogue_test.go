@@ -730,6 +730,23 @@ func imputedAges(t *testing.T, dir, id string) {
 	}
 }
 
+// noCompleteRow writes nocomplete.csv: d.csv with column a empty in the
+// odd rows and column b in the even ones, so that no row is complete.
+func noCompleteRow(t *testing.T, dir, id string) {
+	t.Helper()
+	b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+	for i := 1; i < len(lines); i++ {
+		f := strings.Split(lines[i], ",")
+		f[1+i%2] = ""
+		lines[i] = strings.Join(f, ",")
+	}
+	os.WriteFile(filepath.Join(dir, "nocomplete.csv"), []byte(strings.Join(lines, "\n")+"\n"), 0o644)
+}
+
 func allMissing(t *testing.T, dir, id string) {
 	t.Helper()
 	b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
@@ -1159,6 +1176,20 @@ func catalogue(dir string) (items []badInput) {
 		{id: "I9", name: "impute a column missing in every row", args: []string{"run"}, setup: allMissing,
 			plan: edit("  file: d.csv\n", "  file: allmiss.csv\n  missing: impute\n"), code: 1,
 			want: []string{`data.missing: impute, outcome "y": column b is missing in all 120 rows: there is nothing to impute it from (drop it from the plan, or supply its values)`}},
+		{id: "I9", name: "check: impute a column missing in every row", args: []string{"check"}, setup: allMissing,
+			plan: edit("  file: d.csv\n", "  file: allmiss.csv\n  missing: impute\n"), code: 1,
+			want: []string{`I9.yaml: data.missing: impute, outcome "y": column b is missing in all 120 rows: there is nothing to impute it from (drop it from the plan, or supply its values)`}},
+		{id: "I24", name: "check: impute data in which no row is complete", args: []string{"check"}, setup: noCompleteRow,
+			plan: edit("  file: d.csv\n", "  file: nocomplete.csv\n  missing: impute\n"), code: 0,
+			want: []string{`I24.yaml: plan is valid`}},
+		{id: "I24", name: "run: impute data in which no row is complete", args: []string{"run"}, setup: noCompleteRow,
+			plan: edit("  file: d.csv\n", "  file: nocomplete.csv\n  missing: impute\n"), code: 0,
+			check: func(t *testing.T, dir, out, errs string) {
+				b, err := os.ReadFile(filepath.Join(dir, "I24-out", "report.md"))
+				if err != nil || !strings.Contains(string(b), "Of 120 rows, 120 (100.0%) miss at least one used column") {
+					t.Errorf("report.md does not count every row incomplete (%v)", err)
+				}
+			}},
 		{id: "I10", name: "fewer than two imputed sets", args: []string{"check"},
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  missing: impute\n  imputation: {sets: 1}\n"), code: 1,
 			want: []string{`data.imputation.sets: pooling needs at least 2 imputed sets, got 1`}},
