@@ -73,7 +73,7 @@ func registrationItems(dir string) []badInput {
 			plan: "title: EDIT the title of the report\n" + edit("  - column: y\n", "  - column: y   # <- outcome (guessed: EDIT)\n"),
 			want: []string{`R6.yaml:1:8: title: still holds the placeholder of ordplan init ("EDIT the title of the report"): replace it`,
 				`R6.yaml:6:40: outcomes[0].column: still marked by ordplan init ("<- outcome (guessed: EDIT)"): check the line, then delete the marker`,
-				"R6.yaml still has 2 place(s) marked EDIT by ordplan init", "check each place, delete its marker, then freeze"},
+				"R6.yaml still has 2 places marked EDIT by ordplan init", "check each place, delete its marker, then freeze"},
 			check: func(t *testing.T, dir, out, errs string) {
 				if _, err := os.Stat(filepath.Join(dir, "R6.lock.json")); !os.IsNotExist(err) {
 					t.Errorf("a lock was written for a plan still marked by init: %v", err)

@@ -237,7 +237,7 @@ func TestInitMarkersBlockFreezing(t *testing.T) {
 		t.Fatalf("only %d marked lines in\n%s", len(marked), text)
 	}
 	out, errs, code := runCLI("check", planPath)
-	if code != 0 || !strings.Contains(out, "plan is valid") || !strings.Contains(out, strconv.Itoa(len(marked))+" place(s) still marked EDIT") {
+	if code != 0 || !strings.Contains(out, "plan is valid") || !strings.Contains(out, strconv.Itoa(len(marked))+" places still marked EDIT") {
 		t.Fatalf("check: %d\n%s\n%s", code, out, errs)
 	}
 	for _, line := range marked {

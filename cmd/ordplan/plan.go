@@ -4,6 +4,7 @@ import (
 	"flag"
 	"fmt"
 	"io"
+	"ordplan/internal/words"
 	"os"
 	"path/filepath"
 	"slices"
@@ -59,10 +60,10 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 	if *noData {
 		what = "plan is valid (data file not read)"
 	}
-	fmt.Fprintf(stdout, "%s: %s (%d outcome(s), %d predictors, sha256 %s)\n", p.Path, what, len(p.Outcomes), len(p.Predictors), p.Hash)
+	fmt.Fprintf(stdout, "%s: %s (%s, %s, sha256 %s)\n", p.Path, what, words.Count(len(p.Outcomes), "outcome", "outcomes"), words.Count(len(p.Predictors), "predictor", "predictors"), p.Hash)
 	if len(p.Unedited) > 0 {
 		warnUnedited(p, stderr)
-		fmt.Fprintf(stdout, "note: %d place(s) still marked %s by ordplan init (listed on standard error): check each and delete its marker; ordplan freeze refuses the plan until then\n", len(p.Unedited), plan.EditMarker)
+		fmt.Fprintf(stdout, "note: %s still marked %s by ordplan init (listed on standard error): check each and delete its marker; ordplan freeze refuses the plan until then\n", words.Count(len(p.Unedited), "place", "places"), plan.EditMarker)
 	}
 	warnPlan(p, stderr)
 	for _, w := range dataWarnings {
@@ -343,8 +344,8 @@ func refuseUnedited(p *plan.Plan, stderr io.Writer) bool {
 	for _, e := range p.Unedited {
 		fmt.Fprintln(stderr, e)
 	}
-	fmt.Fprintf(stderr, "ordplan freeze: %s still has %d place(s) marked %s by ordplan init (guesses from the data such as the order of the categories, or placeholders); a registered plan states the analyst's own choices: check each place, delete its marker, then freeze\n",
-		p.Path, len(p.Unedited), plan.EditMarker)
+	fmt.Fprintf(stderr, "ordplan freeze: %s still has %s marked %s by ordplan init (guesses from the data such as the order of the categories, or placeholders); a registered plan states the analyst's own choices: check each place, delete its marker, then freeze\n",
+		p.Path, words.Count(len(p.Unedited), "place", "places"), plan.EditMarker)
 	return true
 }
 

@@ -3,6 +3,7 @@ package words
 import (
 	"fmt"
 	"slices"
+	"strconv"
 	"strings"
 )
 
@@ -79,6 +80,15 @@ func Unknown(what, w string, names []string) string {
 // AndList renders ["a", "b", "c"] as "a, b and c" ("a and b", "a"; "" for
 // none): the one way the program lists names in a sentence.
 func AndList(words []string) string { return list(words, " and ") }
+
+// Count writes a count with its noun in the number it takes: "1 key",
+// "2 keys", "0 keys".
+func Count(n int, one, many string) string {
+	if n == 1 {
+		return "1 " + one
+	}
+	return strconv.Itoa(n) + " " + many
+}
 
 // OrList renders ["a", "b", "c"] as "a, b or c".
 func OrList(words []string) string { return list(words, " or ") }

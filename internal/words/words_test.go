@@ -59,3 +59,15 @@ func TestNearestByEditDistance(t *testing.T) {
 		}
 	}
 }
+
+// A count takes its noun in the number the count asks for.
+func TestCount(t *testing.T) {
+	for _, c := range []struct {
+		n    int
+		want string
+	}{{0, "0 keys"}, {1, "1 key"}, {2, "2 keys"}, {12, "12 keys"}} {
+		if got := Count(c.n, "key", "keys"); got != c.want {
+			t.Errorf("Count(%d) = %q, want %q", c.n, got, c.want)
+		}
+	}
+}

@@ -206,8 +206,8 @@ type UnexplainedError struct {
 func (e *UnexplainedError) Error() string {
 	var b strings.Builder
 	n := e.Status.Unexplained()
-	fmt.Fprintf(&b, "%s: the plan departs from its registered form (%s, frozen %s) in %d %s without a stated reason:",
-		e.Plan, filepath.Base(e.Lock), e.Status.Lock.FrozenAt, n, keyWord(n))
+	fmt.Fprintf(&b, "%s: the plan departs from its registered form (%s, frozen %s) in %s without a stated reason:",
+		e.Plan, filepath.Base(e.Lock), e.Status.Lock.FrozenAt, words.Count(n, "key", "keys"))
 	for _, c := range e.Status.Changes {
 		if c.Reason == "" && c.Follows == "" {
 			fmt.Fprintf(&b, "\n  %s: %s -> %s", c.Path, c.From, c.To)
@@ -250,12 +250,4 @@ func (s *Status) SensitivityChanges(i int) []Explained {
 // the frozen plan had no such item, not a changed key of one it had.
 func SensitivityAdded(changes []Explained) bool {
 	return slices.ContainsFunc(changes, func(c Explained) bool { return c.From == Absent && !strings.Contains(c.Path, ".") })
-}
-
-// keyWord is "key" or "keys" for n keys of a plan.
-func keyWord(n int) string {
-	if n == 1 {
-		return "key"
-	}
-	return "keys"
 }
