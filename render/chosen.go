@@ -50,8 +50,8 @@ func writeChosen(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			d.p("Standard errors from the cluster-robust sandwich over %d clusters: each p-value and interval refers to t on G-1 = %s degrees of freedom, not to the normal (the covariance is estimated from the %d clusters' sums).", res.Clusters, numfmt.Num(res.RefDF), res.Clusters)
 		}
 	}
-	if n := res.NotEstimableNote(mdCode); n != "" {
-		d.p("**Warning:** in %s, %s.", or.Chosen.ID, n)
+	if w := notEstimableWarning(or.Chosen.ID, res); w != "" {
+		d.p("%s", w)
 	}
 	if why := res.SingularClustered(); why != "" {
 		d.p("**Warning:** %s, %s: some combinations of its estimates have no estimated variance, no joint test of G or more restrictions can be made from it, and its errors, intervals and tests rest on few clusters.", or.Chosen.ID, why)
@@ -65,6 +65,19 @@ func writeChosen(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		head = append([]string{"Term"}, head...)
 	}
 	d.captioned("Estimates of the chosen model, "+or.Chosen.ID).table(head, rows)
+}
+
+// notEstimableWarning is the paragraph that says which standard errors of
+// fit res (model id) are not estimable under clustered errors and why
+// (fit.NotEstimable), or "" when there are none: above the table of the
+// chosen model's estimates, and below the table of its odds ratios when
+// that has n/a intervals.
+func notEstimableWarning(id string, res *fit.Result) string {
+	n := res.NotEstimableNote(mdCode)
+	if n == "" {
+		return ""
+	}
+	return fmt.Sprintf("**Warning:** in %s, %s.", id, n)
 }
 
 // negativeRows says, for a fit that predicts a negative category

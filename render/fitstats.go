@@ -140,6 +140,11 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		head = append(head, "df")
 	}
 	d.captioned(capitalize(kind)+"s of the chosen model").table(head, rows)
+	if slices.ContainsFunc(tab.Rows, func(o runner.OddsRatioRow) bool { return math.IsNaN(o.Low) || math.IsNaN(o.High) }) {
+		if w := notEstimableWarning(or.Chosen.ID, res); w != "" {
+			d.p("%s", w)
+		}
+	}
 	if u := unshownOdds(tab.Rows); u != "" {
 		d.p("%s", u)
 	}

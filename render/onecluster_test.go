@@ -63,7 +63,9 @@ inference:
 // table of tests says "not computed (clustered errors, see below)" in each
 // cell such a test has and the reason once below the table, never in a
 // cell; the tables of marginal effects and predictions, n/a throughout
-// (an average runs over every site's effect), say why in one sentence.
+// (an average runs over every site's effect), say why in one sentence;
+// the table of odds ratios, n/a for the sites' intervals, has below it the
+// warning the table of estimates has above it, in the same words.
 func TestNotEstimableReadsOnce(t *testing.T) {
 	dir := t.TempDir()
 	siteData(t, dir, 0)
@@ -79,6 +81,30 @@ func TestNotEstimableReadsOnce(t *testing.T) {
 		if strings.HasPrefix(line, "|") && strings.Contains(line, "are not estimable under clustered errors") {
 			t.Errorf("report.md: a table cell gives the whole reason: %s", line)
 		}
+	}
+	// The odds ratios of the site levels have n/a intervals, x's has
+	// numbers; below the table the estimates' warning, word for word.
+	between := func(s, from, to string) string {
+		t.Helper()
+		i := strings.Index(s, from)
+		if i < 0 {
+			t.Fatalf("report.md: no %q", from)
+		}
+		j := strings.Index(s[i+len(from):], to)
+		if j < 0 {
+			t.Fatalf("report.md: nothing after %q ends with %q", from, to)
+		}
+		return s[i : i+len(from)+j]
+	}
+	warn := between(md, "**Warning:** in cumulative/parallel/logit, the standard errors of", "\n")
+	odds := between(md, "Cumulative odds ratios of the chosen model", "\n#")
+	table := between(odds, "\n|", "\n\n")
+	hasAll(t, "report.md (odds ratios)", table, "| site.b | b against a | every boundary | ", " | n/a | n/a |")
+	if x := between(table, "\n| x | ", "\n"); strings.Contains(x, "n/a") {
+		t.Errorf("x's odds ratio has an n/a interval:\n%s", table)
+	}
+	if !strings.Contains(odds, table+"\n\n"+warn+"\n") {
+		t.Errorf("report.md: the odds-ratio table is not followed by the estimates' warning %q:\n%s", warn, odds)
 	}
 	// Hypotheses: "site = 0" is not computed in both models, each with
 	// its own parameters: the reasons below the table name their models.
