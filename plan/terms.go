@@ -55,6 +55,9 @@ func (d *decoder) decodeCategorical(n *yaml.Node) []CategoricalColumn {
 		m.word("coding", "coding", codingWords, &c.Coding)
 		m.boolean("ordered", &c.Ordered)
 		m.word("unobserved", "handling of an unobserved level", unobservedWords, &c.Unobserved)
+		if c.Unobserved == design.UnobservedDrop {
+			c.UnobservedAt = m.at("unobserved")
+		}
 		if c.Levels != nil {
 			if key, err := c.Check(); err != nil {
 				d.errAt(m.at(key), "%v", err)

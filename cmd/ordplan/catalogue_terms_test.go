@@ -168,8 +168,8 @@ func termItems(dir string) []badInput {
 			plan: termsEdit("[north, east, south]}", "[north, east, south, west], unobserved: drop}"), code: 0,
 			check: func(t *testing.T, dir, out, errs string) {
 				rep, err := os.ReadFile(filepath.Join(dir, "T7-out", "report.md"))
-				if err != nil || !strings.Contains(string(rep), `Level "west" of site occurs in no row used; its column was dropped`) {
-					t.Errorf("the dropped level is not reported: %v", err)
+				if err != nil || !strings.Contains(string(rep), `Level "west" of site occurs in no row used; its column was dropped, as asked (categorical.site.unobserved).`) {
+					t.Errorf("the dropped level is not reported, at the plan key that asks it: %v", err)
 				}
 			}},
 		{id: "T8", name: "transformed categorical column", args: []string{"check"}, setup: writeTermsData,

@@ -287,7 +287,11 @@ func (d *Design) buildCategorical(t *Term, src Source, v, w []float64, fz *TermR
 			return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("the reference level %q occurs in no row used; choose another reference", name), Levels: true}
 		case c.Unobserved == UnobservedDrop:
 			t.Dropped = append(t.Dropped, name)
-			d.Notes = append(d.Notes, fmt.Sprintf("Level %q of %s occurs in no row used; its column was dropped, as asked (%s).", name, src.Name, t.Key))
+			asked := t.Key
+			if c.UnobservedAt != "" {
+				asked = c.UnobservedAt
+			}
+			d.Notes = append(d.Notes, fmt.Sprintf("Level %q of %s occurs in no row used; its column was dropped, as asked (%s).", name, src.Name, asked))
 		default:
 			return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("level %q is declared but occurs in no row used; remove it from the levels, or have its column dropped (in a plan unobserved: drop, in ordplan fit |drop)", name), Levels: true}
 		}

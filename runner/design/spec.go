@@ -20,6 +20,11 @@ type Categorical struct {
 	Coding     string   `json:"coding,omitempty"`     // Treatment (default), Sum or Successive
 	Ordered    bool     `json:"ordered,omitempty"`    // the levels are ordered as listed
 	Unobserved string   `json:"unobserved,omitempty"` // UnobservedRefuse (default) or UnobservedDrop
+	// UnobservedAt is where a plan asks for UnobservedDrop
+	// (categorical.COLUMN.unobserved), named by the note that a level's
+	// column was dropped; "" names the term (a --predictors item, whose
+	// |drop asks it).
+	UnobservedAt string `json:"-"`
 }
 
 // Source is one raw column a design reads.
