@@ -36,7 +36,13 @@ type ChainedRecord struct {
 	// Unheld says how many imputed values of a numeric column lie outside
 	// what the data dictionary declares or below 0 where no observed value
 	// is (chained.Result.Unheld).
-	Unheld           []string `json:"unheld,omitempty"`
+	Unheld []string `json:"unheld,omitempty"`
+	// Unlinked says, per incomplete column and level of another
+	// categorical column, where the column is never observed at that
+	// level though rows there miss it (unlinkedLevels): what the sets hold
+	// there comes from the imputation models alone. check and run warn of
+	// it (ImputationWarnings), the report says it.
+	Unlinked         []string `json:"unlinked,omitempty"`
 	ConvergenceTable bool     `json:"-"`
 }
 
@@ -107,6 +113,7 @@ func imputeChained(a *Analysis, r Reading, ds *data.Dataset, seed uint64, frozen
 			a.Source, im.Sets, r.Outcome, ds.N, ds.N*im.Sets, maxWrittenRows)
 	}
 	cols := chainedColumns(im, r, ds, a.Declared)
+	unlinked := unlinkedLevels(cols, chainedLevels(r, ds))
 	stream := uint64(slices.IndexFunc(a.Outcomes, func(o Reading) bool { return o.Outcome == r.Outcome }))
 	cfg := chained.Config{Sets: im.Sets, Iterations: im.Iterations, Seed: seed, Stream: stream, Donors: chainedDonors, Workers: opt.Workers}
 	if ip, ok := opt.Progress.(ImputationProgress); ok {
@@ -136,7 +143,7 @@ func imputeChained(a *Analysis, r Reading, ds *data.Dataset, seed uint64, frozen
 	run := &ImputedRun{M: im.Sets, Source: "chained", Files: []string{a.DataFile}, Rows: ds.N, Sets: fds, Data: sets, observed: observed,
 		Chained: &ChainedRecord{Outcome: r.Outcome, Method: "chained equations", Sets: im.Sets, Iterations: im.Iterations, Seed: seed,
 			Stream: stream, Donors: chainedDonors, RowsIncomplete: ds.Incomplete, Visits: res.Visits, Models: res.Models, Trace: res.Trace,
-			Notes: append(notes, res.Notes...), Unheld: res.Unheld, ConvergenceTable: im.ConvergenceTable}}
+			Notes: append(notes, res.Notes...), Unheld: res.Unheld, Unlinked: unlinked, ConvergenceTable: im.ConvergenceTable}}
 	if im.WriteSets && frozen == nil {
 		run.completed = func() ([]byte, error) { return completedCSV(sets, r) }
 	}
@@ -369,6 +376,86 @@ func chainedColumns(im *plan.Imputation, r Reading, ds *data.Dataset, declared m
 		cols = append(cols, chained.Column{Name: r.Options.Offset, Values: ds.Offset})
 	}
 	return cols
+}
+
+// chainedLevels are the level labels of the columns of chainedColumns:
+// the outcome's categories, a categorical column's levels, nil for a
+// numeric column (and the offset).
+func chainedLevels(r Reading, ds *data.Dataset) [][]string {
+	out := [][]string{ds.Categories}
+	for _, s := range r.Design.Sources {
+		var levels []string
+		if s.Cat != nil {
+			levels = s.Cat.Levels
+		}
+		out = append(out, levels)
+	}
+	return out
+}
+
+// unlinkedLevels finds, for each incomplete column of cols and each level
+// of another column with levels (labels: each column's level labels, nil
+// for a numeric one), the level at which the column is observed in no
+// row though some rows there miss it: say the outcome is missing in every
+// row of a group. Nothing in the data then links the column to that
+// level: what the imputed sets hold for it there comes from the
+// imputation models alone (the columns imputed in turn from each other),
+// and so does every estimate of the analysis that involves both. One
+// sentence per such pair, in column order.
+func unlinkedLevels(cols []chained.Column, labels [][]string) []string {
+	var out []string
+	for c, col := range cols {
+		if !slices.ContainsFunc(col.Values, math.IsNaN) {
+			continue
+		}
+		for k, by := range cols {
+			if k == c || k >= len(labels) || labels[k] == nil {
+				continue
+			}
+			both := make([]int, len(labels[k]))
+			missing := make([]int, len(labels[k]))
+			for i, v := range by.Values {
+				if math.IsNaN(v) {
+					continue
+				}
+				if math.IsNaN(col.Values[i]) {
+					missing[int(v)]++
+				} else {
+					both[int(v)]++
+				}
+			}
+			for l, n := range missing {
+				if n > 0 && both[l] == 0 {
+					out = append(out, fmt.Sprintf("%s is missing in all %d rows where %s is %s: nothing in the data links %s to %s = %s, so its imputed values there, and every estimate that involves both (such as the effect of that level), come from the imputation models alone, not from the data", col.Name, n, by.Name, labels[k][l], col.Name, by.Name, labels[k][l]))
+				}
+			}
+		}
+	}
+	return out
+}
+
+// ImputationWarnings are the warnings of a run whose outcomes' data it
+// imputed where a column is never observed at a level of another
+// (ChainedRecord.Unlinked), one per such pair, as check words them too.
+func ImputationWarnings(res *Result) []string {
+	var out []string
+	for _, or := range res.Outcomes {
+		if or.Imputed == nil || or.Imputed.Chained == nil {
+			continue
+		}
+		out = append(out, unlinkedWarnings(or.Outcome.Column, or.Imputed.Chained.Unlinked)...)
+	}
+	return out
+}
+
+// unlinkedWarnings words the sentences of ChainedRecord.Unlinked of an
+// outcome as warnings.
+func unlinkedWarnings(outcome string, unlinked []string) []string {
+	var out []string
+	for _, u := range unlinked {
+		out = append(out, fmt.Sprintf("outcome %s: data.missing: impute: %s", outcome, u))
+	}
+	return out
 }
 
 // completed is the data set ds with its outcome and predictors taken from

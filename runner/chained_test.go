@@ -13,6 +13,7 @@ import (
 
 	"ordplan/internal/testsurvey"
 	"ordplan/plan"
+	"ordplan/runner/impute/chained"
 )
 
 // chainedFixture writes an invented survey (seeded): y in three ordered
@@ -242,5 +243,28 @@ func TestChainedFrequencyWeightsRowsAsRead(t *testing.T) {
 	}
 	if len(od.Dropped) != 1 || od.Dropped[0].Column != "w" || od.Dropped[0].Rows != missingOutcome {
 		t.Errorf("dropped %+v, want %d rows under w", od.Dropped, missingOutcome)
+	}
+}
+
+// TestUnlinkedLevels: a column missing in every row at a level of another
+// column with levels (the outcome where g is c; x in outcome category
+// hi) is named once per such pair, with the rows that miss it; a level at
+// which the column is observed once, or that no row has, is not; numeric
+// columns have no levels to name.
+func TestUnlinkedLevels(t *testing.T) {
+	nan := math.NaN()
+	cols := []chained.Column{
+		{Name: "y", Values: []float64{0, 1, nan, nan, 0, 1}},
+		{Name: "g", Values: []float64{0, 1, 2, 2, 1, nan}},
+		{Name: "x", Values: []float64{1.5, nan, 2, 3, 4, nan}},
+	}
+	labels := [][]string{{"lo", "hi"}, {"a", "b", "c", "d"}, nil}
+	got := unlinkedLevels(cols, labels)
+	want := []string{
+		"y is missing in all 2 rows where g is c: nothing in the data links y to g = c, so its imputed values there, and every estimate that involves both (such as the effect of that level), come from the imputation models alone, not from the data",
+		"x is missing in all 2 rows where y is hi: nothing in the data links x to y = hi, so its imputed values there, and every estimate that involves both (such as the effect of that level), come from the imputation models alone, not from the data",
+	}
+	if !slices.Equal(got, want) {
+		t.Errorf("got\n%s\nwant\n%s", strings.Join(got, "\n"), strings.Join(want, "\n"))
 	}
 }

@@ -26,10 +26,11 @@ func CheckData(p *plan.Plan) ([]string, error) {
 	var scopes []plan.ParameterScope
 	var warnings []string
 	for i, r := range a.Outcomes {
-		ld, err := a.checkLoad(r)
+		ld, unlinked, err := a.checkLoad(r)
 		if err != nil {
 			return nil, err
 		}
+		warnings = append(warnings, unlinkedWarnings(r.Outcome, unlinked)...)
 		if err := a.CheckDesign(r, ld.Design, ld.FitData); err != nil {
 			return nil, err
 		}
@@ -90,16 +91,19 @@ func CheckData(p *plan.Plan) ([]string, error) {
 }
 
 // checkLoad reads outcome r's data for check: its complete rows (Load).
-// With data.missing: impute, run reads no complete rows but imputes the
-// rows kept: so check first imputes them as run does, into two sets after
-// one iteration (the plan's models and seed; chainedSets), stopping where
-// run's imputation would (a column missing in every row, I9); and where
-// no row is complete, which run imputes (I24), it checks the design on
-// the first imputed set, as run makes it, rather than refusing the data
-// as if their incomplete rows were dropped.
-func (a *Analysis) checkLoad(r Reading) (*Loaded, error) {
+// With data.missing: impute run fits no complete rows but imputed sets:
+// so check imputes the rows kept as run does, into two sets after one
+// iteration (the plan's models and seed; chainedSets), stopping where
+// run's imputation would (a column missing in every row, I9), and checks
+// the design on the first imputed set, as run makes it: a level seen only
+// in incomplete rows is a level of the rows used, and data in which no
+// row is complete are imputed, not refused (I24). unlinked are the
+// imputation's ChainedRecord.Unlinked, which check warns of as run does
+// (I25).
+func (a *Analysis) checkLoad(r Reading) (ld *Loaded, unlinked []string, err error) {
 	if !a.Imputes() {
-		return a.Load(r)
+		ld, err = a.Load(r)
+		return ld, nil, err
 	}
 	quick := *a
 	im := *a.Imputation
@@ -108,20 +112,19 @@ func (a *Analysis) checkLoad(r Reading) (*Loaded, error) {
 	run, sets, dz, err := chainedSets(&quick, r, Options{})
 	switch {
 	case errors.Is(err, errNothingToImpute):
-		return a.Load(r)
+		ld, err = a.Load(r)
+		return ld, nil, err
 	case err != nil:
-		return nil, err
-	case run.observed.N > run.observed.Incomplete:
-		return a.Load(r)
+		return nil, nil, err
 	}
 	ds := *sets[0]
 	if err := a.Clusters(r, &ds); err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	if err := a.checkPanels(r, run.observed, dz); err != nil {
-		return nil, err
+		return nil, nil, err
 	}
-	return &Loaded{Data: &ds, Design: dz, FitData: run.Sets[0]}, nil
+	return &Loaded{Data: &ds, Design: dz, FitData: run.Sets[0]}, run.Chained.Unlinked, nil
 }
 
 // rowsFitted are the rows the fits of outcome r use, as run counts them
@@ -227,7 +230,7 @@ func NotCheckedWithoutData(p *plan.Plan) []string {
 		out = append(out, "data.imputed: the imputed sets against the data file (their rows, columns and the values the data observe)")
 	}
 	if p.Data.Imputes() {
-		out = append(out, "data.missing: impute: the columns imputed (none missing in every row), imputed into two sets after one iteration as run imputes them, and the design on an imputed set where no row is complete")
+		out = append(out, "data.missing: impute: the columns imputed (none missing in every row), imputed into two sets after one iteration as run imputes them, and the design on the first imputed set, as run makes it")
 	}
 	if len(p.Dictionary) > 0 {
 		out = append(out, "dictionary: the data's values against the declared ranges, values and missing-value codes")

@@ -294,7 +294,8 @@ func SensitivityWarnings(r *Result) []string {
 // outcomes (BinaryWarnings, those the data found), categorical
 // predictors held at their reference in pairs of levels
 // (PairsProfileWarnings), too few clusters and what follows from them
-// (FewClustersWarnings).
+// (FewClustersWarnings), imputed values no data link to a level
+// (ImputationWarnings).
 func runWarnings(res *Result) []string {
 	found := make([]int, len(res.Plan.Outcomes))
 	for i, or := range res.Outcomes {
@@ -302,7 +303,7 @@ func runWarnings(res *Result) []string {
 			found[i] = len(or.Data.Categories)
 		}
 	}
-	return slices.Concat(ClusterWarnings(res.Plan), BinaryWarnings(res.Plan, nil), BinaryWarnings(res.Plan, found), PairsProfileWarnings(res.Plan), FewClustersWarnings(res))
+	return slices.Concat(ClusterWarnings(res.Plan), BinaryWarnings(res.Plan, nil), BinaryWarnings(res.Plan, found), PairsProfileWarnings(res.Plan), FewClustersWarnings(res), ImputationWarnings(res))
 }
 
 // Warnings are the warnings of a sensitivity analysis that ran (none when

@@ -747,6 +747,45 @@ func noCompleteRow(t *testing.T, dir, id string) {
 	os.WriteFile(filepath.Join(dir, "nocomplete.csv"), []byte(strings.Join(lines, "\n")+"\n"), 0o644)
 }
 
+// levelOnlyIncomplete writes levelinc.csv: d.csv with column a empty in
+// every row where b is 1, so that level 1 of b occurs in no complete row.
+func levelOnlyIncomplete(t *testing.T, dir, id string) {
+	t.Helper()
+	b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(b)), "\n")
+	for i := 1; i < len(lines); i++ {
+		f := strings.Split(lines[i], ",")
+		if f[2] == "1" {
+			f[1] = ""
+		}
+		lines[i] = strings.Join(f, ",")
+	}
+	os.WriteFile(filepath.Join(dir, "levelinc.csv"), []byte(strings.Join(lines, "\n")+"\n"), 0o644)
+}
+
+// unlinkedLevel writes unlinked.csv: the first 40 rows of d.csv with the
+// outcome empty in every row where b is 1, and b set to 1 in ten of them.
+func unlinkedLevel(t *testing.T, dir, id string) {
+	t.Helper()
+	b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(b)), "\n")[:41]
+	for i := 1; i < len(lines); i++ {
+		f := strings.Split(lines[i], ",")
+		f[2] = "0"
+		if i%4 == 0 {
+			f[0], f[2] = "", "1"
+		}
+		lines[i] = strings.Join(f, ",")
+	}
+	os.WriteFile(filepath.Join(dir, "unlinked.csv"), []byte(strings.Join(lines, "\n")+"\n"), 0o644)
+}
+
 func allMissing(t *testing.T, dir, id string) {
 	t.Helper()
 	b, err := os.ReadFile(filepath.Join(dir, "d.csv"))
@@ -1179,8 +1218,30 @@ func catalogue(dir string) (items []badInput) {
 		{id: "I9", name: "check: impute a column missing in every row", args: []string{"check"}, setup: allMissing,
 			plan: edit("  file: d.csv\n", "  file: allmiss.csv\n  missing: impute\n"), code: 1,
 			want: []string{`I9.yaml: data.missing: impute, outcome "y": column b is missing in all 120 rows: there is nothing to impute it from (drop it from the plan, or supply its values)`}},
+		{id: "I25", name: "check: impute an outcome missing in every row of a level", args: []string{"check"}, setup: unlinkedLevel,
+			plan: edit("  file: d.csv\n", "  file: unlinked.csv\n  missing: impute\n", "predictors:", "categorical:\n  b: {levels: [\"0\", \"1\"]}\npredictors:"), code: 0,
+			want: []string{`I25.yaml: plan is valid`},
+			check: func(t *testing.T, dir, out, errs string) {
+				if !strings.Contains(errs, "warning: "+filepath.Join(dir, "I25.yaml")+": outcome y: data.missing: impute: y is missing in all 10 rows where b is 1: nothing in the data links y to b = 1, so its imputed values there, and every estimate that involves both (such as the effect of that level), come from the imputation models alone, not from the data\n") {
+					t.Errorf("stderr lacks the warning: %s", errs)
+				}
+			}},
+		{id: "I25", name: "run: impute an outcome missing in every row of a level", args: []string{"run"}, setup: unlinkedLevel,
+			plan: edit("  file: d.csv\n", "  file: unlinked.csv\n  missing: impute\n", "predictors:", "categorical:\n  b: {levels: [\"0\", \"1\"]}\npredictors:"), code: 0,
+			check: func(t *testing.T, dir, out, errs string) {
+				if !strings.Contains(errs, ": outcome y: data.missing: impute: y is missing in all 10 rows where b is 1: nothing in the data links y to b = 1") {
+					t.Errorf("stderr lacks the warning: %s", errs)
+				}
+				b, err := os.ReadFile(filepath.Join(dir, "I25-out", "report.md"))
+				if err != nil || !strings.Contains(string(b), "**Warning:** imputed values that no observed data inform") || !strings.Contains(string(b), "- y is missing in all 10 rows where b is 1: nothing in the data links y to b = 1") {
+					t.Errorf("report.md lacks the warning (%v)", err)
+				}
+			}},
 		{id: "I24", name: "check: impute data in which no row is complete", args: []string{"check"}, setup: noCompleteRow,
 			plan: edit("  file: d.csv\n", "  file: nocomplete.csv\n  missing: impute\n"), code: 0,
+			want: []string{`I24.yaml: plan is valid`}},
+		{id: "I24", name: "check: impute data with a level seen only in incomplete rows", args: []string{"check"}, setup: levelOnlyIncomplete,
+			plan: edit("  file: d.csv\n", "  file: levelinc.csv\n  missing: impute\n", "predictors:", "categorical:\n  b: {levels: [\"0\", \"1\"]}\npredictors:"), code: 0,
 			want: []string{`I24.yaml: plan is valid`}},
 		{id: "I24", name: "run: impute data in which no row is complete", args: []string{"run"}, setup: noCompleteRow,
 			plan: edit("  file: d.csv\n", "  file: nocomplete.csv\n  missing: impute\n"), code: 0,

@@ -318,8 +318,9 @@ func warnPlan(p *plan.Plan, stderr io.Writer) {
 
 // warnFound prints, on stderr, the warnings of runner.BinaryWarnings for
 // the outcomes whose categories the plan leaves to the data, once res has
-// read them, and those of data with too few clusters for clustered errors
-// (runner.FewClustersWarnings).
+// read them, those of data with too few clusters for clustered errors
+// (runner.FewClustersWarnings) and of imputed values that no data link to
+// a level (runner.ImputationWarnings).
 func warnFound(p *plan.Plan, res *runner.Result, stderr io.Writer) {
 	found := make([]int, len(p.Outcomes))
 	for i, or := range res.Outcomes {
@@ -330,7 +331,7 @@ func warnFound(p *plan.Plan, res *runner.Result, stderr io.Writer) {
 	for _, w := range runner.BinaryWarnings(p, found) {
 		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
 	}
-	for _, w := range slices.Concat(runner.FewClustersWarnings(res), runner.ImputedCopies(res.Imputed), runner.SensitivityWarnings(res)) {
+	for _, w := range slices.Concat(runner.FewClustersWarnings(res), runner.ImputationWarnings(res), runner.ImputedCopies(res.Imputed), runner.SensitivityWarnings(res)) {
 		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
 	}
 }
