@@ -71,6 +71,9 @@ func ChangesFrom(prev *Decisions, prevRec *RunRecord, cur *Decisions, res *Resul
 		}
 		out = append(out, fmt.Sprintf("The plan changed (sha256 %.12s... -> %.12s...)%s.", prev.Plan.SHA256, cur.Plan.SHA256, keys))
 	}
+	if c := registrationChange(prev.Registration, cur.Registration); c != "" {
+		out = append(out, c)
+	}
 	var cols []OutcomeColumns
 	var canon json.RawMessage
 	if res != nil {

@@ -8,6 +8,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"ordplan/plan/lock"
 )
 
 // A model whose verdict changed reads in order: what it was in the earlier
@@ -274,5 +276,40 @@ func TestPlanKeyChanges(t *testing.T) {
 		if got := strings.Join(RecordChanges(c.was, c.now), "; "); got != c.want {
 			t.Errorf("RecordChanges: %q, want %q", got, c.want)
 		}
+	}
+}
+
+// The list of --previous says when the plan's registration changed: a lock
+// removed or added, a plan that departs from its lock where it matched
+// it, a lock frozen anew; two runs without a lock, or alike, say nothing.
+func TestChangesOfRegistration(t *testing.T) {
+	none := &RegistrationRecord{State: "none", LockFile: "p.lock.json"}
+	matches := &RegistrationRecord{State: "matches", LockFile: "p.lock.json", FrozenAt: "2026-12-01T09:00:00Z", CanonicalSHA256: "aaaaaaaaaaaaaaaa"}
+	departs := &RegistrationRecord{State: "deviations", LockFile: "p.lock.json", FrozenAt: "2026-12-01T09:00:00Z", CanonicalSHA256: "aaaaaaaaaaaaaaaa",
+		Changes: []lock.Explained{{Change: lock.Change{Path: "predictors"}, Reason: "renamed"}, {Change: lock.Change{Path: "report.title", Follows: "title"}}}}
+	forced := &RegistrationRecord{State: "unexplained", LockFile: "p.lock.json", FrozenAt: "2026-12-01T09:00:00Z", CanonicalSHA256: "aaaaaaaaaaaaaaaa",
+		Changes: []lock.Explained{{Change: lock.Change{Path: "rules[1].choose.by"}}}, AllowedUnexplained: true}
+	anew := &RegistrationRecord{State: "matches", LockFile: "p.lock.json", FrozenAt: "2026-12-01T09:00:00Z", CanonicalSHA256: "bbbbbbbbbbbbbbbb"}
+	for _, c := range []struct {
+		was, now *RegistrationRecord
+		want     string
+	}{
+		{matches, none, "The plan's registration changed: in the earlier run the plan matched its lock p.lock.json (frozen 2026-12-01T09:00:00Z); in this run the plan had no lock file (p.lock.json)."},
+		{none, departs, "The plan's registration changed: in the earlier run the plan had no lock file (p.lock.json); in this run the plan departed from its lock p.lock.json (frozen 2026-12-01T09:00:00Z) in 2 keys (predictors, report.title), each with a stated reason."},
+		{departs, forced, "in this run the plan departed from its lock p.lock.json (frozen 2026-12-01T09:00:00Z) in 1 key (rules[1].choose.by), 1 without a stated reason (let through by --allow-unregistered-changes)."},
+		{matches, anew, "in the earlier run the plan matched its lock p.lock.json (frozen 2026-12-01T09:00:00Z), canonical sha256 aaaaaaaaaaaa...; in this run the plan matched its lock p.lock.json (frozen 2026-12-01T09:00:00Z), canonical sha256 bbbbbbbbbbbb..."},
+		{matches, matches, ""},
+		{none, &RegistrationRecord{State: "none", LockFile: "q.lock.json"}, ""},
+		{nil, matches, ""}, // an earlier run that did not record it
+	} {
+		got := registrationChange(c.was, c.now)
+		if c.want == "" && got != "" || !strings.Contains(got, c.want) {
+			t.Errorf("got  %q\nwant %q", got, c.want)
+		}
+	}
+	// Through the list: the line comes after the plan's own changes.
+	lines := ChangesFrom(&Decisions{Program: "ordplan", Registration: matches}, nil, &Decisions{Registration: none}, nil)
+	if len(lines) == 0 || !strings.HasPrefix(lines[0], "The plan's registration changed:") {
+		t.Errorf("ChangesFrom: %q", lines)
 	}
 }

@@ -1,6 +1,7 @@
 package runner
 
 import (
+	"fmt"
 	"slices"
 	"strings"
 
@@ -78,4 +79,49 @@ func registrationRecord(st *lock.Status) *RegistrationRecord {
 		r.CanonicalSHA256, r.FrozenAt, r.ProgramVersion, r.Registration = f.SHA256, f.FrozenAt, f.Version, f.Registration
 	}
 	return r
+}
+
+// registrationChange says how the plan's registration differs between an
+// earlier run and this one, for the list of --previous ("" when it does
+// not, or when either run did not record it): a lock removed, added or
+// frozen anew, a plan that matched its lock and now departs from it.
+func registrationChange(was, now *RegistrationRecord) string {
+	if was == nil || now == nil || unregistered(was) && unregistered(now) {
+		return "" // two plans without a lock have no registration to differ in
+	}
+	w, n := registrationPhrase(was), registrationPhrase(now)
+	if w == n && was.CanonicalSHA256 == now.CanonicalSHA256 {
+		return ""
+	}
+	if w == n { // frozen anew within the same second: the phrases alike
+		w += fmt.Sprintf(", canonical sha256 %.12s...", was.CanonicalSHA256)
+		n += fmt.Sprintf(", canonical sha256 %.12s...", now.CanonicalSHA256)
+	}
+	return fmt.Sprintf("The plan's registration changed: in the earlier run %s; in this run %s.", w, n)
+}
+
+// registrationPhrase words a run's registration for registrationChange.
+func registrationPhrase(r *RegistrationRecord) string {
+	lockAt := r.LockFile + " (frozen " + r.FrozenAt + ")"
+	var keys []string
+	unexplained := 0
+	for _, c := range r.Changes {
+		keys = append(keys, c.Path)
+		if c.Reason == "" && c.Follows == "" {
+			unexplained++
+		}
+	}
+	listed := ""
+	if len(keys) <= 5 {
+		listed = " (" + strings.Join(keys, ", ") + ")"
+	}
+	switch r.State {
+	case lock.StateNone:
+		return "the plan had no lock file (" + r.LockFile + ")"
+	case lock.StateMatches:
+		return "the plan matched its lock " + lockAt
+	case lock.StateDeviations:
+		return fmt.Sprintf("the plan departed from its lock %s in %d %s%s, each with a stated reason", lockAt, len(keys), plural("key", len(keys)), listed)
+	}
+	return fmt.Sprintf("the plan departed from its lock %s in %d %s%s, %d without a stated reason (let through by --allow-unregistered-changes)", lockAt, len(keys), plural("key", len(keys)), listed, unexplained)
 }
