@@ -51,6 +51,15 @@ func registrationItems(dir string) []badInput {
 			setup: func(t *testing.T, dir, id string) { freezeAs(t, dir, id, goodPlan) },
 			want: []string{`rules[1].choose.by: "aic" -> "bic"`,
 				`deviations: "rules[1].chose.by" (line 15) explains no change from the frozen plan; did you mean "rules[1].choose.by", which changed?`}},
+		{id: "R7", name: "run: a stated deviation that explains no change, beside one that does", args: []string{"run"}, code: 0,
+			plan:  changed + "deviations:\n  - key: rules[1].choose.by\n    reason: BIC was registered in the protocol\n  - key: titel\n    reason: a typo\n",
+			setup: func(t *testing.T, dir, id string) { freezeAs(t, dir, id, goodPlan) },
+			want: []string{"registered plan: 1 deviation(s) from R7.lock.json, each with a stated reason\n" +
+				`note: deviations: "titel" (line 17) explains no change from the frozen plan` + "\n"}},
+		{id: "R7", name: "run: a deviations list whose lock is gone", args: []string{"run"}, code: 0,
+			plan:  changed + "deviations:\n  - key: rules[1].choose.by\n    reason: BIC was registered in the protocol\n",
+			setup: func(t *testing.T, dir, id string) { os.Remove(filepath.Join(dir, id+".lock.json")) },
+			want:  []string{`note: deviations: "rules[1].choose.by" (line 15) explains a change, but nothing is frozen: the plan has no lock file (R7.lock.json) whose plan it could depart from`}},
 		{id: "R2", name: "lock file edited by hand", args: []string{"check"}, plan: goodPlan, code: 1,
 			setup: func(t *testing.T, dir, id string) {
 				lp := freezeAs(t, dir, id, goodPlan)

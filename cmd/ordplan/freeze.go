@@ -106,6 +106,23 @@ func registration(p *plan.Plan, allow bool, stderr io.Writer) (*lock.Status, int
 	return st, exitOK
 }
 
+// printRegistration prints what check, run, rehearse and power say of the
+// plan's registration: the one-line summary, with changes each change and
+// its reason (check), then a note on each stated deviation that explains
+// no change (R7), a misspelt key or a list left from before a lock was
+// removed, which the report lists too.
+func printRegistration(w io.Writer, st *lock.Status, changes bool) {
+	fmt.Fprintln(w, registrationLine(st))
+	if changes {
+		for _, c := range st.Changes {
+			fmt.Fprintf(w, "  %s: %s -> %s (%s)\n", c.Path, c.From, c.To, c.ReasonText("NO STATED REASON"))
+		}
+	}
+	for _, dv := range st.Unused {
+		fmt.Fprintf(w, "note: %s\n", st.UnusedNote(dv))
+	}
+}
+
 // registrationLine is the one-line summary check and run print.
 func registrationLine(st *lock.Status) string {
 	switch st.State {

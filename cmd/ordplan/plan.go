@@ -49,13 +49,7 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 			return exitFail
 		}
 	}
-	fmt.Fprintln(stdout, registrationLine(st))
-	for _, c := range st.Changes {
-		fmt.Fprintf(stdout, "  %s: %s -> %s (%s)\n", c.Path, c.From, c.To, c.ReasonText("NO STATED REASON"))
-	}
-	for _, dv := range st.Unused {
-		fmt.Fprintf(stdout, "note: %s\n", st.UnusedNote(dv))
-	}
+	printRegistration(stdout, st, true)
 	what := "plan is valid"
 	if *noData {
 		what = "plan is valid (data file not read)"
@@ -176,7 +170,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	if err := writeRun(lock, res, "run", dir, files); err != nil {
 		return fail(stderr, err)
 	}
-	fmt.Fprintln(stdout, registrationLine(reg))
+	printRegistration(stdout, reg, false)
 	code = exitOK
 	for _, o := range dec.Outcomes {
 		switch {

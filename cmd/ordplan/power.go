@@ -127,7 +127,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 	if err != nil {
 		return fail(stderr, err)
 	}
-	fmt.Fprintln(stdout, registrationLine(reg))
+	printRegistration(stdout, reg, false)
 	for _, op := range pr.Outcomes {
 		for _, s := range op.Sizes {
 			var parts []string

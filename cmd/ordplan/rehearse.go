@@ -143,7 +143,7 @@ func cmdRehearse(args []string, stdout, stderr io.Writer) int {
 	if err := writeRun(olock, res, "rehearse", dir, files); err != nil {
 		return fail(stderr, err)
 	}
-	fmt.Fprintln(stdout, registrationLine(reg))
+	printRegistration(stdout, reg, false)
 	fmt.Fprintf(stdout, "%s: %d rows simulated from the plan's assumptions\n", render.SimulatedMark, rows)
 	for _, o := range dec.Outcomes {
 		chosen := "no model chosen"
