@@ -3,6 +3,7 @@ package render
 import (
 	"fmt"
 
+	"ordplan/internal/words"
 	"ordplan/plan/lock"
 	"ordplan/runner"
 )
@@ -79,7 +80,7 @@ func writeLockStatus(d *doc, st *lock.Status, version string, w lockWords, earli
 	case lock.StateNone:
 		d.p("**Registered plan: none.** No lock file (%s) lies beside the plan, %s", mdCode(st.LockFile), w.none)
 		if len(st.Unused) > 0 {
-			d.p("The plan lists %d deviation(s), but without a lock there is no registered plan to compare with.", len(st.Unused))
+			d.p("The plan lists %s, but without a lock there is no registered plan to compare with.", words.Count(len(st.Unused), "deviation", "deviations"))
 		}
 		return
 	case lock.StateMatches:
@@ -87,8 +88,9 @@ func writeLockStatus(d *doc, st *lock.Status, version string, w lockWords, earli
 		writeUnusedDeviations(d, st)
 		return
 	case lock.StateUnexplained:
-		d.p("**UNREGISTERED CHANGES: %d of the %d change(s) from the registered plan have no reason in the plan's `deviations` list; the %s was forced with `--allow-unregistered-changes`.** %s",
-			st.Unexplained(), len(st.Changes), w.what, w.forced)
+		count, have := st.UnexplainedOf()
+		d.p("**UNREGISTERED CHANGES: %s from the registered plan %s no reason in the plan's `deviations` list; the %s was forced with `--allow-unregistered-changes`.** %s",
+			count, have, w.what, w.forced)
 	}
 	d.h(2, "Deviations from the registered plan")
 	d.p("The registered plan is %s. %s in %d key%s of the canonical form:", frozen(), w.departs, len(st.Changes), plural(len(st.Changes)))

@@ -54,7 +54,7 @@ func registrationItems(dir string) []badInput {
 		{id: "R7", name: "run: a stated deviation that explains no change, beside one that does", args: []string{"run"}, code: 0,
 			plan:  changed + "deviations:\n  - key: rules[1].choose.by\n    reason: BIC was registered in the protocol\n  - key: titel\n    reason: a typo\n",
 			setup: func(t *testing.T, dir, id string) { freezeAs(t, dir, id, goodPlan) },
-			want: []string{"registered plan: 1 deviation(s) from R7.lock.json, each with a stated reason\n" +
+			want: []string{"registered plan: 1 deviation from R7.lock.json, each with a stated reason\n" +
 				`note: deviations: "titel" (line 17) explains no change from the frozen plan` + "\n"}},
 		{id: "R7", name: "run: a deviations list whose lock is gone", args: []string{"run"}, code: 0,
 			plan:  changed + "deviations:\n  - key: rules[1].choose.by\n    reason: BIC was registered in the protocol\n",

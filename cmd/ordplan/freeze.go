@@ -8,6 +8,7 @@ import (
 	"strings"
 	"time"
 
+	"ordplan/internal/words"
 	"ordplan/plan"
 	"ordplan/plan/lock"
 	"ordplan/runner"
@@ -57,7 +58,7 @@ func cmdFreeze(args []string, stdout, stderr io.Writer) int {
 	}
 	fmt.Fprintf(stdout, "froze %s: %s (canonical sha256 %s, %s)\n", planPath, path, f.SHA256, f.FrozenAt)
 	if len(p.Deviations) > 0 {
-		fmt.Fprintf(stdout, "note: the plan's deviations list (%d item(s)) is not part of the frozen form; it explains later changes\n", len(p.Deviations))
+		fmt.Fprintf(stdout, "note: the plan's deviations list (%s) is not part of the frozen form; it explains later changes\n", words.Count(len(p.Deviations), "item", "items"))
 	}
 	return exitOK
 }
@@ -131,8 +132,9 @@ func registrationLine(st *lock.Status) string {
 	case lock.StateMatches:
 		return "registered plan: matches " + st.LockFile + " (frozen " + st.Lock.FrozenAt + ")"
 	case lock.StateDeviations:
-		return fmt.Sprintf("registered plan: %d deviation(s) from %s, each with a stated reason", len(st.Changes), st.LockFile)
+		return fmt.Sprintf("registered plan: %s from %s, each with a stated reason", words.Count(len(st.Changes), "deviation", "deviations"), st.LockFile)
 	}
-	return fmt.Sprintf("registered plan: UNREGISTERED CHANGES: %d of %d change(s) from %s have no stated reason (allowed by --allow-unregistered-changes)",
-		st.Unexplained(), len(st.Changes), st.LockFile)
+	count, have := st.UnexplainedOf()
+	return fmt.Sprintf("registered plan: UNREGISTERED CHANGES: %s from %s %s no stated reason (allowed by --allow-unregistered-changes)",
+		count, st.LockFile, have)
 }

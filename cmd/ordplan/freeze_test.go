@@ -53,7 +53,7 @@ func TestFreezeRunDeviations(t *testing.T) {
 		t.Fatalf("without reason: %d %s", code, msg)
 	}
 	md, msg, code = report("--allow-unregistered-changes")
-	if code != 0 || !strings.HasPrefix(opening(md), "**UNREGISTERED CHANGES: 1 of the 1 change(s)") || !strings.Contains(md, "**no stated reason**") {
+	if code != 0 || !strings.HasPrefix(opening(md), "**UNREGISTERED CHANGES: the 1 change from the registered plan has no reason") || !strings.Contains(md, "**no stated reason**") {
 		t.Fatalf("forced: %d %s\n%s", code, msg, md)
 	}
 	if !strings.Contains(msg, "registered plan: UNREGISTERED CHANGES") {

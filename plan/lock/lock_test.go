@@ -456,3 +456,25 @@ func TestStabilityDrawIsRegistered(t *testing.T) {
 		t.Fatalf("draw: bootstrap written out: %v %+v", err, st)
 	}
 }
+
+// The count of changes without a stated reason reads with its verb: the
+// one change, all of several, or some of them.
+func TestUnexplainedOf(t *testing.T) {
+	ch := func(reason, follows string) Explained {
+		return Explained{Change: Change{Path: "k", Follows: follows}, Reason: reason}
+	}
+	for _, c := range []struct {
+		changes     []Explained
+		count, verb string
+	}{
+		{[]Explained{ch("", "")}, "the 1 change", "has"},
+		{[]Explained{ch("", ""), ch("", "")}, "all 2 changes", "have"},
+		{[]Explained{ch("", ""), ch("why", ""), ch("", "title"), ch("why", "")}, "1 of the 4 changes", "has"},
+		{[]Explained{ch("", ""), ch("", ""), ch("why", "")}, "2 of the 3 changes", "have"},
+	} {
+		st := &Status{Changes: c.changes}
+		if count, verb := st.UnexplainedOf(); count != c.count || verb != c.verb {
+			t.Errorf("got %q %q, want %q %q", count, verb, c.count, c.verb)
+		}
+	}
+}

@@ -66,6 +66,25 @@ func (s *Status) Unexplained() int {
 	return n
 }
 
+// UnexplainedOf words the count of changes without a stated reason among
+// all the changes, with its verb: "1 of the 4 changes", "has"; "the 1
+// change", "has"; "all 3 changes", "have" (the registration line of
+// check and run, and the report's opening).
+func (s *Status) UnexplainedOf() (count, verb string) {
+	n, all := s.Unexplained(), len(s.Changes)
+	verb = "have"
+	if n == 1 {
+		verb = "has"
+	}
+	switch {
+	case n == all && n == 1:
+		return "the 1 change", verb
+	case n == all:
+		return fmt.Sprintf("all %d changes", n), verb
+	}
+	return fmt.Sprintf("%d of the %s", n, words.Count(all, "change", "changes")), verb
+}
+
 // Compare compares a plan with a lock.
 func Compare(p *plan.Plan, f *File) (*Status, error) {
 	frozen, err := indentCanonical(f.Canonical)
