@@ -93,7 +93,7 @@ func cmdInit(args []string, stdout, stderr io.Writer) int {
 	if err := newfile.Create(planPath, text); err != nil {
 		return initTargetError(planPath, err, stderr)
 	}
-	fmt.Fprintf(stdout, "wrote %s: edit the lines marked EDIT, then `ordplan check %s`\n", planPath, planPath)
+	fmt.Fprintf(stdout, "wrote %s: edit the lines marked EDIT, then `%s`\n", planPath, commandLine([]string{"ordplan", "check", planPath}))
 	for _, n := range skeleton.Notes(in) {
 		fmt.Fprintf(stdout, "note: %s\n", n)
 	}

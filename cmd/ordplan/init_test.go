@@ -428,3 +428,19 @@ func TestInitOrdersTextLabelsNaturally(t *testing.T) {
 		t.Errorf("want %q in:\n%s", want, text)
 	}
 }
+
+// The command init suggests, and the --previous a rerun suggests, can be
+// pasted into a shell when the path holds a space (or another character
+// a shell reads): such a path is quoted.
+func TestSuggestedCommandsQuotePaths(t *testing.T) {
+	dir := filepath.Join(t.TempDir(), "my study é")
+	os.MkdirAll(dir, 0o755)
+	planPath := filepath.Join(dir, "plan ü.yaml")
+	out, errs, code := runCLI("init", planPath, "--header", "y,a,b")
+	if want := "then `ordplan check '" + planPath + "'`\n"; code != 0 || !strings.HasSuffix(out, want) {
+		t.Errorf("init: exit %d, want the suffix %q in\n%s%s", code, want, out, errs)
+	}
+	if got := commandLine([]string{"--previous", "out/plan ü/earlier/20261205T090258Z"}); got != "--previous 'out/plan ü/earlier/20261205T090258Z'" {
+		t.Errorf("--previous: %s", got)
+	}
+}

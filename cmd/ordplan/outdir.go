@@ -378,8 +378,8 @@ func writeOutputs(lock *outputLock, dir string, files map[string][]byte, record 
 			return err
 		}
 		if kept != "" && lock != nil && lock.w != nil {
-			fmt.Fprintf(lock.w.stderr, "ordplan %s: output folder %s held an earlier run whose outputs differ from this run's: %s; kept them in %s (--previous %s lists what changed)\n",
-				lock.w.command, dir, recordChange(kept, all[recordFile]), kept, kept)
+			fmt.Fprintf(lock.w.stderr, "ordplan %s: output folder %s held an earlier run whose outputs differ from this run's: %s; kept them in %s (%s lists what changed)\n",
+				lock.w.command, dir, recordChange(kept, all[recordFile]), kept, commandLine([]string{"--previous", kept}))
 		}
 		// Files the previous run listed and this one does not write (the
 		// predictions of an outcome no longer predicted) would sit beside
