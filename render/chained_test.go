@@ -286,3 +286,48 @@ rules:
 		t.Error("the Methods draft lists the weights among the imputed columns")
 	}
 }
+
+// TestChainedRowsDroppedWholeSaid: on data imputed here, rows missing a
+// weight are dropped whole, and the Data section and the limits say that
+// this is a complete-case analysis of those rows, with what it assumes;
+// without such rows the limits say nothing of it.
+func TestChainedRowsDroppedWholeSaid(t *testing.T) {
+	for _, missW := range []bool{true, false} {
+		dir := t.TempDir()
+		rng := rand.New(rand.NewPCG(8, 5))
+		var b strings.Builder
+		b.WriteString("y,x1,x2,w\n")
+		for i := 0; i < 200; i++ {
+			y, x1, x2 := testsurvey.Report.Row(rng)
+			x2s, ws := fmt.Sprintf("%.5f", x2), fmt.Sprint(1+rng.IntN(3))
+			if rng.Float64() < 0.2 {
+				x2s = ""
+			}
+			if missW && i%10 == 0 {
+				ws = ""
+			}
+			fmt.Fprintf(&b, "%d,%.5f,%s,%s\n", y, x1, x2s, ws)
+		}
+		os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644)
+		src := `version: 1
+title: imputed here
+seed: 5
+data: {file: d.csv, missing: impute, weights: w, imputation: {sets: 3, iterations: 2}}
+outcomes: [{column: y}]
+predictors: [x1, x2]
+models: {approaches: [cumulative], effects: [parallel]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: bic}
+`
+		md := string(renderSource(t, dir, src, 2)["report.md"])
+		limit := "Rows missing a column that imputation does not fill (weights, offset, cluster, or a column the subset's conditions read) were dropped whole, as a complete-case analysis drops them (the Data section counts them): the estimates can be biased unless missing those is unrelated to the outcome given the predictors."
+		if !missW {
+			if strings.Contains(md, limit) || strings.Contains(md, "dropped whole") {
+				t.Error("no row was dropped, yet the report says rows were dropped whole")
+			}
+			continue
+		}
+		hasAll(t, "report.md", md, limit, "and were dropped whole, as a complete-case analysis drops them (see Assumptions and limits), the ")
+	}
+}

@@ -274,7 +274,7 @@ func writeMissing(d *doc, or *runner.OutcomeResult) {
 		dropped := ""
 		if obs := or.Observed; obs != nil && obs.Incomplete < incomplete {
 			n := incomplete - obs.Incomplete
-			dropped = fmt.Sprintf("; %d of them miss a column that imputation does not fill (weights, offset, cluster, or a column the subset's conditions read, without which whether the row belongs to the subset is unknown) and were dropped, the %d others were imputed", n, obs.Incomplete)
+			dropped = fmt.Sprintf("; %d of them miss a column that imputation does not fill (weights, offset, cluster, or a column the subset's conditions read, without which whether the row belongs to the subset is unknown) and were dropped whole, as a complete-case analysis drops them (see Assumptions and limits), the %d others were imputed", n, obs.Incomplete)
 		}
 		d.p("Missing values in the columns the analysis uses, in the original data %s. %s%s; the analysis uses the %d imputed data sets instead (see Multiple imputation).",
 			mdCode(originalFile(or)), incompleteWords(or), dropped, or.Imputed.M)

@@ -411,7 +411,11 @@ func rowsSentence(r *runner.Result) string {
 	dropped := false
 	for _, or := range r.Outcomes {
 		if or.Imputed != nil {
-			return "Information criteria and tests compare models on the same rows: every model was fitted on each complete imputed set. Pooled standard errors and tests assume that the values are missing at random given the columns of the imputation models, and include the uncertainty due to the missing values only as far as the imputation model is right."
+			s := "Information criteria and tests compare models on the same rows: every model was fitted on each complete imputed set. Pooled standard errors and tests assume that the values are missing at random given the columns of the imputation models, and include the uncertainty due to the missing values only as far as the imputation model is right."
+			if leftOutWhole(r) {
+				s += " Rows missing a column that imputation does not fill (weights, offset, cluster, or a column the subset's conditions read) were dropped whole, as a complete-case analysis drops them (the Data section counts them): the estimates can be biased unless missing those is unrelated to the outcome given the predictors."
+			}
+			return s
 		}
 		if mt := or.Data.Missing; mt != nil && len(mt.Patterns) > 0 {
 			dropped = true
@@ -421,6 +425,21 @@ func rowsSentence(r *runner.Result) string {
 		return "Information criteria and tests compare models on the same rows; rows with a missing value in a used column were dropped before any model was fitted (a complete-case analysis; the Data section counts them). Its estimates can be biased unless being incomplete is unrelated to the outcome given the predictors, and they use none of the information in the dropped rows."
 	}
 	return "Information criteria and tests compare models on the same rows; no used column had a missing value in the rows analysed."
+}
+
+// leftOutWhole reports whether some outcome's rows were dropped on
+// imputed data this run made: rows missing a column imputation does not
+// fill (writeMissing counts them).
+func leftOutWhole(r *runner.Result) bool {
+	for _, or := range r.Outcomes {
+		if or.Imputed == nil || or.Imputed.Chained == nil || or.Observed == nil || or.Data.Missing == nil {
+			continue
+		}
+		if _, incomplete := missingRows(or); or.Observed.Incomplete < incomplete {
+			return true
+		}
+	}
+	return false
 }
 
 // independenceSentence states what each model assumes, and what the

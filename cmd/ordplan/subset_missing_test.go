@@ -134,7 +134,7 @@ func TestSubsetColumnMissing(t *testing.T) {
 			}
 		}
 		if mode == "impute" {
-			want := fmt.Sprintf("%d of them miss a column that imputation does not fill (weights, offset, cluster, or a column the subset's conditions read, without which whether the row belongs to the subset is unknown) and were dropped, the %d others were imputed", unknown, incomplete)
+			want := fmt.Sprintf("%d of them miss a column that imputation does not fill (weights, offset, cluster, or a column the subset's conditions read, without which whether the row belongs to the subset is unknown) and were dropped whole, as a complete-case analysis drops them (see Assumptions and limits), the %d others were imputed", unknown, incomplete)
 			if !strings.Contains(string(md), want) {
 				t.Errorf("impute: report.md lacks %q", want)
 			}
