@@ -1396,7 +1396,7 @@ func catalogue(dir string) (items []badInput) {
 			}},
 		{id: "D31", name: "a missing value in a column the subset reads, where missing values are refused", args: []string{"run"}, setup: subsetAges,
 			plan: edit("  file: d.csv\n", "  file: subna.csv\n  missing: refuse\n  missing_values: [\"NA\", \"-9\"]\n") + "subset:\n  - {column: age, at_least: 18}\n", code: 1,
-			want: []string{`subna.csv:8: column "age": missing value ("NA") where missing values are refused; the subset's condition on this column cannot be judged`}},
+			want: []string{`subna.csv:8: column "age": missing value ("NA") where missing values are refused; the subset's condition on this column cannot be judged (plan `, `, plan key data.missing)`}},
 		{id: "D33", name: "frequency weights that are not whole numbers", args: []string{"check"}, setup: fractionalWeight,
 			plan: edit("  file: d.csv\n", "  file: fracw.csv\n  weights: w\n"), code: 1,
 			want: []string{`fracw.csv:3: column "w": frequency weight 2.5 is not a whole number: a frequency weight (data.weight_kind: frequency, the default) counts identical rows, so these weights would make 120.5 observations of the 119 rows and give every standard error as if there were that many independent rows; if they are sampling or inverse-probability weights, set data.weight_kind: sampling (ordplan fit: --weight-kind sampling); if they are counts, correct them (plan D33.yaml, outcome "y", plan key data.weight_kind)`}},

@@ -364,7 +364,9 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 				if c.cond {
 					undecided = "; the subset's condition on this column cannot be judged"
 				}
-				return row, r.fail(line, c.name, "missing value (%s) where missing values are refused%s", describeMissing(cell), undecided)
+				e := r.fail(line, c.name, "missing value (%s) where missing values are refused%s", describeMissing(cell), undecided)
+				e.Key = "data.missing"
+				return row, e
 			}
 			if row.miss < 0 {
 				row.miss = ci
