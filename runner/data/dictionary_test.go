@@ -163,3 +163,15 @@ func TestNewRowsSubsetConditions(t *testing.T) {
 		t.Errorf("unchecked %v, rows %d, x %v", rows.Unchecked, rows.N, rows.X)
 	}
 }
+
+// A numeric cell that looks like a missing-value marker none of those in
+// force reads as missing ("n/a") gets, from the dictionary's check as
+// from the reader, the way to have it read as missing.
+func TestValidateMissingWordHint(t *testing.T) {
+	path := writeTemp(t, "d.csv", "y,a\n1,0.5\n2,n/a\n")
+	err := Validate(path, []Rule{{Column: "a", Key: "dictionary.a", Numeric: true}}, nil)
+	want := `d.csv:3: column "a": value "n/a" is not a number; the data dictionary (dictionary.a) describes a numeric column; it looks like a missing-value marker, which is not among the markers in force: to read it as missing, set data.missing_values: ["", "NA", "NaN", ".", "n/a"] (the markers in force and it), or list it for this column alone under dictionary.a.missing (ordplan fit cannot give this code, which holds a comma, slash or equals sign: use a plan)`
+	if err == nil || strings.ReplaceAll(err.Error(), path, "d.csv") != want {
+		t.Errorf("got\n%v\nwant\n%s", err, want)
+	}
+}

@@ -193,7 +193,7 @@ func (r *reader) validateRecords(cols []ruled, ve *ValidationError) error {
 					msg = bad + " (" + c.Key + " leaves the categories to the data, which must then be integer codes; the data dictionary describes the whole file, rows outside the plan's subset too)"
 				}
 			case bad != "":
-				msg = bad + "; the data dictionary (" + c.Key + ") describes a numeric column"
+				msg = bad + "; the data dictionary (" + c.Key + ") describes a numeric column" + r.missingWordHint(c.Column, cell)
 			case c.Range != nil && (x < c.Range[0] || x > c.Range[1]):
 				side := "below"
 				if x > c.Range[1] {
