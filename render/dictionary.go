@@ -1,6 +1,7 @@
 package render
 
 import (
+	"slices"
 	"strconv"
 	"strings"
 
@@ -69,7 +70,11 @@ func writeDictionary(d *doc, r *runner.Result) {
 
 func missingCodes(common, own []string) string {
 	var q []string
-	for _, c := range append(append([]string(nil), common...), own...) {
+	codes := append(append([]string(nil), common...), own...)
+	for i, c := range codes {
+		if slices.Contains(codes[:i], c) {
+			continue // a column's own code that data.missing_values gives too
+		}
 		if c == "" {
 			q = append(q, "(empty)")
 		} else {
