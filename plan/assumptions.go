@@ -3,6 +3,7 @@ package plan
 import (
 	"fmt"
 	"math"
+	"ordplan/internal/words"
 	"slices"
 	"strconv"
 	"strings"
@@ -842,7 +843,7 @@ func (d *decoder) checkEffect(p *Plan, ts design.TermSpec, cols []string, e *Eff
 	case e.Form == EffectPoints && !numeric:
 		d.errAt(e.Key, "values at points describe a numeric term (a column, transformed or not); %s is an interaction: give a slope per design column (%s)", t, strings.Join(cols, ", "))
 	case e.Form == EffectPoints && len(e.At) != len(cols)+1:
-		d.errAt(e.Key, "want %d points, one more than the %d design column(s) of %s (%s), got %d: the curve through them is then the one the columns can draw", len(cols)+1, len(cols), t, strings.Join(cols, ", "), len(e.At))
+		d.errAt(e.Key, "want %d points, one more than the %s of %s (%s), got %d: the curve through them is then the one the columns can draw", len(cols)+1, words.Count(len(cols), "design column", "design columns"), t, strings.Join(cols, ", "), len(e.At))
 	case e.Form == EffectNumber && len(cols) > 1:
 		what := "give a slope per design column"
 		if numeric {

@@ -3,6 +3,7 @@ package plan
 import (
 	"fmt"
 	"math"
+	"ordplan/internal/words"
 	"slices"
 	"strconv"
 
@@ -109,7 +110,7 @@ func (d *decoder) valueRange(n *yaml.Node, path string) []float64 {
 		return nil
 	}
 	if len(items) != 2 {
-		d.errorf(deref(n), path, "want [min, max], got %d value(s)", len(items))
+		d.errorf(deref(n), path, "want [min, max], got %s", words.Count(len(items), "value", "values"))
 		return nil
 	}
 	lo, ok1 := d.number(items[0], itemPath(path, 0))

@@ -50,7 +50,7 @@ func TestChooseAndTieBreak(t *testing.T) {
 		{
 			name: "same parameters within the margin: smaller criterion", by: "aic", margin: 2,
 			fits:   []*FitEntry{candidate("a", ok, 101, 0, 4), candidate("b", ok, 100.5, 0, 4)},
-			chosen: "b", reason: "2 models within the margin 2, this one has the fewest parameters (as 1 other(s) have) and of those the smallest AIC",
+			chosen: "b", reason: "2 models within the margin 2, this one has the fewest parameters (as 1 other has) and of those the smallest AIC",
 		},
 		{
 			name: "equal to rounding: grid order", by: "bic",
@@ -60,7 +60,7 @@ func TestChooseAndTieBreak(t *testing.T) {
 		{
 			name: "equal within the margin: grid order, said so", by: "bic", margin: 2,
 			fits:   []*FitEntry{candidate("first", ok, 0, 200+1e-9, 6), candidate("second", ok, 0, 200, 6)},
-			chosen: "first", reason: "this one has the fewest parameters (as 1 other(s) have) and the same BIC, and comes first in the plan's grid",
+			chosen: "first", reason: "this one has the fewest parameters (as 1 other has) and the same BIC, and comes first in the plan's grid",
 		},
 		{
 			// Equal to rounding is 1e-8 relative (2e-6 at 200): "first" is
@@ -69,7 +69,7 @@ func TestChooseAndTieBreak(t *testing.T) {
 			// those equal to the smallest.
 			name: "near ties in a chain: the smallest decides, then grid order", by: "bic", margin: 2,
 			fits:   []*FitEntry{candidate("first", ok, 0, 200+2.4e-6, 6), candidate("second", ok, 0, 200+1.2e-6, 6), candidate("third", ok, 0, 200, 6)},
-			chosen: "second", reason: "this one has the fewest parameters (as 2 other(s) have) and the same BIC, and comes first in the plan's grid",
+			chosen: "second", reason: "this one has the fewest parameters (as 2 others have) and the same BIC, and comes first in the plan's grid",
 			others: map[string]string{"first": "within the margin (BIC 200.000, +0.000) but 6 parameters like second, whose BIC is smaller", "third": "within the margin (BIC 200.000, +0.000) but 6 parameters and the same BIC as second, which comes first in the plan's grid"},
 		},
 		{

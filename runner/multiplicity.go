@@ -3,6 +3,7 @@ package runner
 import (
 	"fmt"
 	"math"
+	"ordplan/internal/words"
 	"slices"
 	"sort"
 	"strings"
@@ -141,7 +142,11 @@ func adjustHypotheses(an *Analysis, res *Result) {
 	}
 	note := fmt.Sprintf("Multiplicity: the p-values of the plan's hypotheses in the chosen models are adjusted by %s over a family of %d tests (every hypothesis of every outcome with a chosen model)", name, len(ps))
 	if left > 0 {
-		note += fmt.Sprintf("; %d hypothesis test(s) in a chosen model could not be computed and are not in the family", left)
+		are := "are"
+		if left == 1 {
+			are = "is"
+		}
+		note += fmt.Sprintf("; %s in a chosen model could not be computed and %s not in the family", words.Count(left, "hypothesis test", "hypothesis tests"), are)
 	}
 	// A hypothesis naming parameters the chosen model does not have is not
 	// tested there, so it is not in the family either: say which, and

@@ -87,7 +87,7 @@ func TestAdjustHypothesesFamily(t *testing.T) {
 			t.Errorf("%s in %s adjusted", h.Text, h.Model)
 		}
 	}
-	if len(res.Notes) != 1 || !strings.Contains(res.Notes[0], "over a family of 3 tests") || !strings.Contains(res.Notes[0], "1 hypothesis test(s) in a chosen model could not be computed") {
+	if len(res.Notes) != 1 || !strings.Contains(res.Notes[0], "over a family of 3 tests") || !strings.Contains(res.Notes[0], "1 hypothesis test in a chosen model could not be computed") {
 		t.Errorf("notes %q", res.Notes)
 	}
 }

@@ -263,7 +263,7 @@ func ResolvePlan(p *plan.Plan) *Analysis {
 	}
 	a.Fit = a.Errors.fitOptions(1) // the grid runs its fits in parallel
 	a.Fit.KeepStarts = p.Models.RunEveryStart
-	for _, oc := range p.Outcomes {
+	for i, oc := range p.Outcomes {
 		spec := p.DesignSpec(oc)
 		dopt := data.Options{
 			Outcome: oc.Column, Categories: oc.Categories,
@@ -273,6 +273,9 @@ func ResolvePlan(p *plan.Plan) *Analysis {
 		}
 		r := Reading{Outcome: oc.Column, Key: "outcomes: " + oc.Column, CategoriesKey: "categories",
 			Options: readSources(dopt, spec), Design: spec}
+		// A value of the outcome that is not a category (or, without
+		// categories, not an integer code) is fixed in its categories.
+		r.setKey(oc.Column, fmt.Sprintf("outcomes[%d].categories", i))
 		for _, col := range readColumns(r.Options) {
 			if c := p.CategoricalOf(col); c != nil {
 				r.setKey(col, c.Key)

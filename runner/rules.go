@@ -1099,11 +1099,15 @@ func (env *ruleEnv) choose(r plan.Rule, alive []*FitEntry, ro *RuleOutcome) {
 						}
 					}
 				}
+				others := fmt.Sprintf("as %d others have", same)
+				if same == 1 {
+					others = "as 1 other has"
+				}
 				switch {
 				case level > 0:
-					v.Reason += fmt.Sprintf(" (as %d other(s) have) and the same %s, and comes first in the plan's grid", same, by)
+					v.Reason += fmt.Sprintf(" (%s) and the same %s, and comes first in the plan's grid", others, by)
 				case same > 0:
-					v.Reason += fmt.Sprintf(" (as %d other(s) have) and of those the smallest %s", same, by)
+					v.Reason += fmt.Sprintf(" (%s) and of those the smallest %s", others, by)
 				}
 			}
 		case c <= best+r.Margin+tol:

@@ -229,7 +229,7 @@ func TestTableChoose(t *testing.T) {
 			{id: "cumulative/parallel/logit", nparams: 3, aic: 100, bic: 110},
 			{id: "cumulative/partial/logit", nparams: 3, aic: 100, bic: 110},
 		}, chosen: "cumulative/parallel/logit", want: []string{
-			"cumulative/parallel/logit: kept: chosen: BIC 110.000 (smallest 110.000), 3 parameters; 2 models within the margin 0, this one has the fewest parameters (as 1 other(s) have) and the same BIC, and comes first in the plan's grid",
+			"cumulative/parallel/logit: kept: chosen: BIC 110.000 (smallest 110.000), 3 parameters; 2 models within the margin 0, this one has the fewest parameters (as 1 other has) and the same BIC, and comes first in the plan's grid",
 			"cumulative/partial/logit: rejected: within the margin (BIC 110.000, +0.000) but 3 parameters and the same BIC as cumulative/parallel/logit, which comes first in the plan's grid",
 		}},
 		{name: "all rejected: stop", rule: "choose: {by: bic}", pre: "  - reject_unconverged: true\n", fits: []handFit{

@@ -94,7 +94,7 @@ func registrationItems(dir string) []badInput {
 		{id: "V1", name: "values outside the dictionary's range", args: []string{"check"}, code: 1, lines: true,
 			plan: goodPlan + "dictionary:\n  a: {range: [-1.5, 1.5]}\n  b: {values: [0, 1]}\n",
 			want: []string{`d.csv:4: column "a": value "-1.6773" is below the range [-1.5, 1.5] of the data dictionary (dictionary.a.range)`,
-				`d.csv: ... 31 problem(s) in all against the data dictionary`}},
+				`d.csv: ... 31 problems in all against the data dictionary`}},
 		{id: "V2", name: "a value that is not one of the dictionary's values", args: []string{"run"}, code: 1, lines: true,
 			plan: goodPlan + "dictionary:\n  a: {label: Dose}\n  b: {values: [0, 2]}\n",
 			want: []string{`ordplan: d.csv:3: column "b": value "1" is not one of the values 0, 2 of the data dictionary (dictionary.b.values)`}},

@@ -5,6 +5,7 @@ import (
 	"encoding/csv"
 	"fmt"
 	"io"
+	"ordplan/internal/words"
 	"strconv"
 	"strings"
 )
@@ -40,7 +41,7 @@ func (e *ValidationError) Error() string {
 		lines = append(lines, p.Error())
 	}
 	if e.Total > len(e.Problems) {
-		lines = append(lines, fmt.Sprintf("%s: ... %d problem(s) in all against the data dictionary", e.File, e.Total))
+		lines = append(lines, fmt.Sprintf("%s: ... %s in all against the data dictionary", e.File, words.Count(e.Total, "problem", "problems")))
 	}
 	return strings.Join(lines, "\n")
 }
