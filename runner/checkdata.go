@@ -42,6 +42,9 @@ func CheckData(p *plan.Plan) ([]string, error) {
 		if w := a.FewClusters(r, used); w != "" {
 			warnings = append(warnings, fmt.Sprintf("outcome %s: %s", r.Outcome, w))
 		}
+		if w := a.StabilityLevels(r, used); w != "" {
+			warnings = append(warnings, fmt.Sprintf("outcome %s: %s", r.Outcome, w))
+		}
 		if w := a.SparseWithinUnmet(&OutcomeResult{Design: ld.Design, dataOptions: r.Options}, used); w != "" {
 			warnings = append(warnings, fmt.Sprintf("outcome %s: %s", r.Outcome, w))
 		}
@@ -156,7 +159,9 @@ func (a *Analysis) rowsFitted(r Reading, complete *data.Dataset) (*data.Dataset,
 }
 
 // FewClustersWarnings are the warnings of a run's outcomes whose data have
-// too few clusters for clustered errors (Analysis.FewClusters), as check
+// too few clusters for clustered errors (Analysis.FewClusters), or levels
+// that a bootstrap of whole clusters will often leave out
+// (Analysis.StabilityLevels, when the resamples were drawn), as check
 // words them.
 func FewClustersWarnings(res *Result) []string {
 	var out []string
@@ -167,6 +172,9 @@ func FewClustersWarnings(res *Result) []string {
 		}
 		out = append(out, pointWarnings(an.Outcomes[i].Outcome, or.AsRead())...)
 		if w := an.FewClusters(an.Outcomes[i], or.Data); w != "" {
+			out = append(out, fmt.Sprintf("outcome %s: %s", an.Outcomes[i].Outcome, w))
+		}
+		if w := an.StabilityLevels(an.Outcomes[i], or.Data); w != "" && or.Stability != nil {
 			out = append(out, fmt.Sprintf("outcome %s: %s", an.Outcomes[i].Outcome, w))
 		}
 		if w := an.SparseWithinUnmet(or, or.Data); w != "" {

@@ -795,6 +795,9 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 	if w := an.FewClusters(r, &ds); w != "" {
 		or.Notes = append(or.Notes, w)
 	}
+	if w := an.StabilityLevels(r, &ds); w != "" && !opt.NoStability {
+		or.Notes = append(or.Notes, w)
+	}
 	if run.Chained != nil {
 		for _, n := range run.Chained.Notes {
 			or.Notes = append(or.Notes, "Imputation: "+n)

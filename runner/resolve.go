@@ -14,6 +14,8 @@ import (
 	"ordplan/runner/design"
 	"ordplan/runner/fit"
 	"ordplan/runner/impute/chained"
+
+	"ordplan/internal/words"
 )
 
 // Analysis is what running a plan, or `ordplan fit`, needs, resolved once
@@ -62,6 +64,10 @@ type Analysis struct {
 	// PanelsBy is report.panels_by: the column whose values (levels, or
 	// 0 and 1) give the report's predictions a panel each ("" for none).
 	PanelsBy string
+	// Stability is the plan's selection_stability (nil: none asked, or the
+	// flags of ordplan fit), for the warnings that foresee its resamples
+	// (StabilityLevels).
+	Stability *plan.SelectionStability
 }
 
 // Reading says how to read the data of one outcome and build its design.
@@ -252,7 +258,7 @@ func ResolvePlan(p *plan.Plan) *Analysis {
 	a := &Analysis{Source: p.Path, Plan: true, DataFile: p.Data.Name(), DataPath: p.Data.Path,
 		Errors: covariancePolicy(p.Covariance, p.Data.Sampling(), p.FewClusters),
 		Models: p.Models, Tests: p.Tests, Rules: p.Rules, Inference: p.Inference, NewRowsDialect: p.Data.NewRowsDialect(), Level: p.Report.ConfidenceLevel,
-		PanelsBy: p.Report.PanelsBy}
+		PanelsBy: p.Report.PanelsBy, Stability: p.SelectionStability}
 	if p.Data.Parts != nil {
 		a.DataPaths, a.DataFiles = p.Data.PartPaths, p.Data.PartFiles
 	}
@@ -551,9 +557,24 @@ func (a *Analysis) FewClusters(r Reading, ds *data.Dataset) string {
 // for sites as fixed effects with errors clustered by site). It names up
 // to three such levels and counts the others, or returns "".
 func oneClusterLevels(r Reading, ds *data.Dataset) string {
-	var found []string
+	found, _ := levelsInOneCluster(r, ds, false)
+	if len(found) == 0 {
+		return ""
+	}
+	return fmt.Sprintf("the rows of %s lie in one cluster each (a cluster's own fixed effect, or a level met in one cluster): the score of such a level's column sums to 0 over its rows at the maximum, so its sum in each cluster is 0 and the cluster-robust standard errors, tests and intervals of its effects have nothing to rest on: the outputs show them as not available (n/a), with the reason; read its estimates only, or give it errors that do not cluster by this column",
+		words.Some(found, 3))
+}
+
+// levelsInOneCluster finds the levels of the categorical predictors of r
+// whose rows in ds all lie in one cluster, each named "site = s1 (cluster
+// "s1")", and the distinct clusters that hold them (in the order found).
+// Without all, only the levels that have a 0/1 column of their own
+// (treatment coding, not the reference: those whose effects the
+// cluster-robust errors cannot estimate); with all, every level of every
+// coding (those a resample of whole clusters loses with their cluster).
+func levelsInOneCluster(r Reading, ds *data.Dataset, all bool) (found, clusters []string) {
 	for _, src := range r.Design.Sources {
-		if src.Cat == nil || (src.Cat.Coding != "" && src.Cat.Coding != design.Treatment) {
+		if src.Cat == nil || (!all && src.Cat.Coding != "" && src.Cat.Coding != design.Treatment) {
 			continue
 		}
 		j := slices.Index(ds.Predictors, src.Name)
@@ -579,21 +600,15 @@ func oneClusterLevels(r Reading, ds *data.Dataset) string {
 			}
 		}
 		for l, c := range in {
-			if l != ref && c != "" && !many[l] {
+			if (all || l != ref) && c != "" && !many[l] {
 				found = append(found, fmt.Sprintf("%s = %s (cluster %s)", src.Name, src.Cat.Levels[l], strconv.Quote(c)))
+				if !slices.Contains(clusters, c) {
+					clusters = append(clusters, c)
+				}
 			}
 		}
 	}
-	if len(found) == 0 {
-		return ""
-	}
-	more := ""
-	if len(found) > 3 {
-		more = fmt.Sprintf(" and %d more", len(found)-3)
-		found = found[:3]
-	}
-	return fmt.Sprintf("the rows of %s%s lie in one cluster each (a cluster's own fixed effect, or a level met in one cluster): the score of such a level's column sums to 0 over its rows at the maximum, so its sum in each cluster is 0 and the cluster-robust standard errors, tests and intervals of its effects have nothing to rest on: the outputs show them as not available (n/a), with the reason; read its estimates only, or give it errors that do not cluster by this column",
-		strings.Join(found, ", "), more)
+	return found, clusters
 }
 
 // clusterCase warns of cluster ids of the rows used that differ only in

@@ -129,6 +129,9 @@ func runOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash 
 	if w := an.FewClusters(r, ds); w != "" {
 		or.Notes = append(or.Notes, w)
 	}
+	if w := an.StabilityLevels(r, ds); w != "" && !opt.NoStability {
+		or.Notes = append(or.Notes, w)
+	}
 	if err := an.CheckDesign(r, dz, or.FitData); err != nil {
 		return nil, err
 	}

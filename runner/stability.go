@@ -11,6 +11,7 @@ import (
 
 	"gonum.org/v1/gonum/stat"
 
+	"ordplan/internal/words"
 	"ordplan/plan"
 	"ordplan/runner/data"
 	"ordplan/runner/fit"
@@ -273,6 +274,63 @@ func resampleRows(ds *data.Dataset, rng *rand.Rand) (rows []int, weights []float
 		}
 	}
 	return rows, weights, cluster
+}
+
+// StabilityLevels warns, when the plan's selection_stability draws
+// bootstrap resamples of whole clusters (data.cluster set, draw:
+// bootstrap), of the levels of categorical predictors whose rows all lie
+// in one cluster (levelsInOneCluster, every level of every coding): a
+// resample that does not draw that cluster has no row of the level, its
+// column cannot be estimated, and the resample fails as a whole. It names
+// the levels and gives the share of resamples expected to lose at least
+// one of them (missingClusterShare), or returns "".
+func (a *Analysis) StabilityLevels(r Reading, ds *data.Dataset) string {
+	st := a.Stability
+	if st == nil || st.Draw == plan.StabilityChosenModel || len(ds.Cluster) == 0 || a.Imputed != nil {
+		return ""
+	}
+	found, clusters := levelsInOneCluster(r, ds, true)
+	if len(found) == 0 {
+		return ""
+	}
+	G := ClusterCount(ds)
+	share := missingClusterShare(G, len(clusters))
+	held := fmt.Sprintf("%d such clusters of %d, each", len(clusters), G)
+	if len(clusters) == 1 {
+		held = fmt.Sprintf("1 such cluster of %d,", G)
+	}
+	lost := fmt.Sprintf("%s left out of a resample with probability (1-1/%d)^%d = %.2f", held, G, G, math.Pow(1-1/float64(G), float64(G)))
+	each := ""
+	if len(found) > 1 {
+		each = " each"
+	}
+	return fmt.Sprintf("selection_stability: the bootstrap draws whole clusters of %q, and the rows of %s lie in one cluster%s: a resample that does not draw that cluster has no row of the level, so its column cannot be estimated and the resample fails as a whole; about %.1f%% of the %d resamples are expected to fail for this alone (%s), and the shares of the choice then rest on the others. "+
+		"To avoid it, merge such levels with others or leave the term out, or use selection_stability.draw: chosen_model, which keeps the rows used",
+		r.Options.Cluster, words.Some(found, 3), each, 100*share, st.Resamples, lost)
+}
+
+// missingClusterShare is the probability that a resample of G clusters
+// drawn with replacement (G draws) leaves out at least one of k given
+// clusters: 1 less the probability that the draws meet all k, followed
+// draw by draw over the number met so far (a new one with probability
+// (k - m)/G after m), which stays exact where the alternating sums of
+// inclusion and exclusion cancel.
+func missingClusterShare(G, k int) float64 {
+	if k <= 0 || G <= 0 {
+		return 0
+	}
+	p := make([]float64, k+1) // p[m]: m of the k met so far
+	p[0] = 1
+	for range G {
+		for m := k; m >= 0; m-- {
+			stay := p[m] * (1 - float64(k-m)/float64(G))
+			if m > 0 {
+				stay += p[m-1] * float64(k-m+1) / float64(G)
+			}
+			p[m] = stay
+		}
+	}
+	return math.Min(1, math.Max(0, 1-p[k]))
 }
 
 // resampleRNG is the stream of resample r of outcome oi: from the plan's

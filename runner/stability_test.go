@@ -484,3 +484,33 @@ func TestSimulateChosen(t *testing.T) {
 		}
 	}
 }
+
+// TestMissingClusterShare: the share of resamples of G clusters (G draws
+// with replacement) that leave out at least one of k given clusters,
+// against the closed forms of the occupancy problem: for k = 1 the
+// chance (1-1/G)^G that one cluster is never drawn; for k = G one less
+// the chance G!/G^G that every cluster is drawn once; for k = 2, by
+// inclusion and exclusion, 2 (1-1/G)^G - (1-2/G)^G; and no cluster, no
+// loss.
+func TestMissingClusterShare(t *testing.T) {
+	for _, G := range []int{2, 3, 6, 12, 40} {
+		g := float64(G)
+		fact := 1.0 // G!/G^G
+		for i := 1; i <= G; i++ {
+			fact *= float64(i) / g
+		}
+		for _, c := range []struct {
+			k    int
+			want float64
+		}{
+			{0, 0},
+			{1, math.Pow(1-1/g, g)},
+			{2, 2*math.Pow(1-1/g, g) - math.Pow(1-2/g, g)},
+			{G, 1 - fact},
+		} {
+			if got := missingClusterShare(G, c.k); math.Abs(got-c.want) > 1e-12 {
+				t.Errorf("G = %d, k = %d: %.15g, want %.15g", G, c.k, got, c.want)
+			}
+		}
+	}
+}

@@ -2170,6 +2170,31 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("the references are not said")
 				}
 			}},
+		{id: "W33", name: "selection_stability's bootstrap of whole clusters with a level whose rows lie in one cluster (many resamples will fail)", args: []string{"check"}, code: 0,
+			setup: func(t *testing.T, dir, id string) {
+				withColumns(t, dir, "lvl.csv", "site,sid", func(i int, _ []string) string {
+					if i%12 == 0 {
+						return "z,c0"
+					}
+					return fmt.Sprintf("%c,c%d", "km"[i%2], i%12)
+				})
+			},
+			plan: edit("file: d.csv", "file: lvl.csv\n  cluster: sid", "predictors: [a, b]", "categorical: {site: {levels: [k, m, z]}}\npredictors: [a, b, site]", "rules:", "covariance: clustered\nselection_stability: {resamples: 40, seed: 3}\nrules:"),
+			want: []string{"plan is valid"},
+			check: func(t *testing.T, dir, out, errs string) {
+				if !strings.Contains(errs, `W33.yaml: outcome y: selection_stability: the bootstrap draws whole clusters of "sid", and the rows of site = z (cluster "c0") lie in one cluster: a resample that does not draw that cluster has no row of the level, so its column cannot be estimated and the resample fails as a whole; about 35.2% of the 40 resamples are expected to fail for this alone (1 such cluster of 12, left out of a resample with probability (1-1/12)^12 = 0.35), and the shares of the choice then rest on the others. To avoid it, merge such levels with others or leave the term out, or use selection_stability.draw: chosen_model, which keeps the rows used`) {
+					t.Errorf("no warning of the resamples that will fail:\n%s", errs)
+				}
+				// With draw: chosen_model the rows used are kept: no warning.
+				p := edit("file: d.csv", "file: lvl.csv\n  cluster: sid", "predictors: [a, b]", "categorical: {site: {levels: [k, m, z]}}\npredictors: [a, b, site]", "rules:", "covariance: clustered\nselection_stability: {resamples: 40, seed: 3, draw: chosen_model}\nrules:")
+				if err := os.WriteFile(filepath.Join(dir, "W33-model.yaml"), []byte(p), 0o644); err != nil {
+					t.Fatal(err)
+				}
+				var o, e bytes.Buffer
+				if code := run([]string{"check", filepath.Join(dir, "W33-model.yaml")}, &o, &e); code != 0 || strings.Contains(o.String()+e.String(), "selection_stability: the bootstrap") {
+					t.Errorf("draw: chosen_model: exit %d, %s%s", code, o.String(), e.String())
+				}
+			}},
 		{id: "W11", name: "few_clusters without clustered errors", args: []string{"check"},
 			plan: edit("rules:", "few_clusters: jackknife\nrules:"), code: 1,
 			want: []string{`W11.yaml:11:15: few_clusters: jackknife corrects clustered errors, but covariance is "observed": set covariance: clustered with data.cluster naming the cluster column, or remove few_clusters`}},

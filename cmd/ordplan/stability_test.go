@@ -191,7 +191,8 @@ func TestSelectionStabilityQueueSaysLocal(t *testing.T) {
 // levels (site fixed effects, errors clustered by a copy of site) fails
 // in every resample that leaves a site out: the report's plain reading
 // says the share counts failures, not stability, and the reasons are
-// listed one to a line.
+// listed one to a line; the outcome's notes said so before the resamples
+// (Analysis.StabilityLevels).
 func TestSelectionStabilityMostlyFailedReport(t *testing.T) {
 	dir := t.TempDir()
 	var b strings.Builder
@@ -208,7 +209,10 @@ func TestSelectionStabilityMostlyFailedReport(t *testing.T) {
 	for _, want := range []string{"so this share says how often it could be run on such data, not how stable the choice is",
 		"levels that are the clusters themselves fail whenever a cluster is left out",
 		"The reasons met first, each once (at most 5, as the resample's own fit gave them):\n\n- ",
-		`term "site": its column "site.s`} {
+		`term "site": its column "site.s`,
+		// Said in advance, among the outcome's notes: 1 - 6!/6^6 = 0.985
+		// of the resamples leave out one of the six clusters.
+		`selection_stability: the bootstrap draws whole clusters of "site2", and the rows of site = s0 (cluster "s0"), site = s1 (cluster "s1"), site = s2 (cluster "s2") and 3 more lie in one cluster each: a resample that does not draw that cluster has no row of the level, so its column cannot be estimated and the resample fails as a whole; about 98.5% of the 20 resamples are expected to fail for this alone (6 such clusters of 6, each left out of a resample with probability (1-1/6)^6 = 0.33)`} {
 		if !strings.Contains(report, want) {
 			t.Errorf("report.md lacks %q", want)
 		}

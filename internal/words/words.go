@@ -90,6 +90,16 @@ func Count(n int, one, many string) string {
 	return strconv.Itoa(n) + " " + many
 }
 
+// Some renders the first n of xs joined by commas and says how many more
+// there are: "a, b, c and 2 more" (all of them, joined by commas, when
+// there are at most n).
+func Some(xs []string, n int) string {
+	if len(xs) <= n {
+		return strings.Join(xs, ", ")
+	}
+	return strings.Join(xs[:n], ", ") + fmt.Sprintf(" and %d more", len(xs)-n)
+}
+
 // OrList renders ["a", "b", "c"] as "a, b or c".
 func OrList(words []string) string { return list(words, " or ") }
 

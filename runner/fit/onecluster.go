@@ -10,6 +10,8 @@ import (
 	"gonum.org/v1/gonum/blas"
 	"gonum.org/v1/gonum/blas/blas64"
 	"gonum.org/v1/gonum/mat"
+
+	"ordplan/internal/words"
 )
 
 // NotEstimable names the parameters of a fit whose cluster-robust
@@ -503,24 +505,15 @@ func notEstimableReason(ne *NotEstimable, name func(string) string) string {
 	for i, c := range ne.Clusters {
 		ids[i] = strconv.Quote(c)
 	}
-	clusters := "cluster " + listSome(ids, 3)
+	clusters := "cluster " + words.Some(ids, 3)
 	if len(ids) > 1 {
-		clusters = "clusters " + listSome(ids, 3)
+		clusters = "clusters " + words.Some(ids, 3)
 	}
 	return fmt.Sprintf("the standard errors of %s"+notEstimableMark+"they depend on combinations of the model's columns whose rows all lie in one cluster (%s), "+
 		"such as a cluster's own fixed effect or a level met in one cluster; such a combination's score sums to 0 within its cluster at the maximum, so the cluster-robust covariance has no information on it. "+
 		"These standard errors, and every test, interval, odds-ratio interval, marginal effect or prediction interval that depends on them, are not available (n/a); "+
 		"read those estimates only, or use errors that do not cluster by this column",
-		listSome(params, 8), clusters)
-}
-
-// listSome joins the first n of xs with commas and says how many more
-// there are.
-func listSome(xs []string, n int) string {
-	if len(xs) <= n {
-		return strings.Join(xs, ", ")
-	}
-	return strings.Join(xs[:n], ", ") + fmt.Sprintf(" and %d more", len(xs)-n)
+		words.Some(params, 8), clusters)
 }
 
 // notEstimableMark is the words that mark a reason of notEstimableReason

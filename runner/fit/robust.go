@@ -5,6 +5,8 @@ import (
 	"math"
 	"slices"
 	"sort"
+
+	"ordplan/internal/words"
 )
 
 // SandwichInfo describes how a sandwich covariance was computed.
@@ -439,7 +441,7 @@ func jackknifeBound(d *Data, r *Result, clusters []string) (*clusterBound, error
 func jackknifeRefusal(ne *NotEstimable, why string) error {
 	return fmt.Errorf("the delete-one-cluster jackknife is not computed for this model because of %s, whose rows all lie in one cluster (%s): %s. "+
 		"Leave those columns out of the model, give the model errors that do not cluster by this column, or drop the few-cluster correction (the clustered sandwich then shows them as n/a and the others with their errors)",
-		listSome(ne.Parameters, 8), listSome(quoteAll(ne.Clusters), 3), why)
+		words.Some(ne.Parameters, 8), words.Some(quoteAll(ne.Clusters), 3), why)
 }
 
 // of is the one-cluster combinations of b that lie in cluster id (nil
