@@ -68,6 +68,7 @@ func writeLockStatus(d *doc, st *lock.Status, version string, w lockWords, earli
 	if st == nil {
 		return
 	}
+	defer writeReplacedLocks(d, st, w)
 	f := st.Lock
 	frozen := func() string {
 		s := fmt.Sprintf("%s, frozen at %s by ordplan %s, canonical sha256 `%s`", mdCode(st.LockFile), f.FrozenAt, f.Version, f.SHA256)
@@ -120,6 +121,45 @@ func codeCell(s string) string {
 		return "(absent)"
 	}
 	return mdCode(s)
+}
+
+// writeReplacedLocks names the earlier locks of the plan that ordplan
+// freeze --replace kept beside its lock (R16): the plan was frozen anew,
+// so it counts as registered only from the lock's time, and a reader
+// compares it with the first form; with no lock left, the kept one says
+// the plan was frozen once.
+func writeReplacedLocks(d *doc, st *lock.Status, w lockWords) {
+	if len(st.Replaced) == 0 {
+		return
+	}
+	var items []string
+	for _, r := range st.Replaced {
+		if r.Error != "" {
+			items = append(items, fmt.Sprintf("%s: cannot be read (%s)", mdCode(r.File), r.Error))
+			continue
+		}
+		item := fmt.Sprintf("%s, frozen at %s", mdCode(r.File), r.FrozenAt)
+		if r.Registration != "" {
+			item += ", registration " + r.Registration
+		}
+		item += fmt.Sprintf(", canonical sha256 `%s`: ", r.SHA256)
+		if len(r.Changed) == 0 {
+			item += "the plan of this " + w.what + " is the same, key for key"
+		} else {
+			keys := make([]string, len(r.Changed))
+			for i, k := range r.Changed {
+				keys[i] = mdCode(k)
+			}
+			item += fmt.Sprintf("the plan of this %s differs from it in %s: %s", w.what, words.Count(len(keys), "key", "keys"), words.AndList(keys))
+		}
+		items = append(items, item)
+	}
+	if st.State == lock.StateNone {
+		d.p("**An earlier lock of this plan is kept beside it** (`ordplan freeze --replace` kept it when the plan was frozen anew), but the lock itself (%s) is gone: the plan was registered, and its registration is no longer read. Put the lock back, or freeze the plan again.", mdCode(st.LockFile))
+	} else {
+		d.p("**Frozen anew.** The lock %s replaced an earlier lock of this plan (`ordplan freeze --replace`), kept beside it. The plan counts as registered only from the time of %s: what changed since the first lock was not fixed then, and this report cannot tell whether the data had been seen.", mdCode(st.LockFile), mdCode(st.LockFile))
+	}
+	d.list(items)
 }
 
 // writeUnusedDeviations lists stated deviations that explain nothing.

@@ -21,6 +21,9 @@ type RegistrationRecord struct {
 	// AllowedUnexplained is true when changes without a stated reason were
 	// let through by --allow-unregistered-changes.
 	AllowedUnexplained bool `json:"allowed_unexplained"`
+	// ReplacedLocks are the earlier locks of the plan that freeze
+	// --replace kept beside its lock.
+	ReplacedLocks []lock.Replaced `json:"replaced_locks,omitempty"`
 	// EarlierRegistered: the earlier runs of the registered plan,
 	// unchanged, in the output folder of a run that departs from it.
 	EarlierRegistered []EarlierRun `json:"earlier_registered_runs,omitempty"`
@@ -71,7 +74,7 @@ func registrationRecord(st *lock.Status) *RegistrationRecord {
 	if st == nil {
 		return nil
 	}
-	r := &RegistrationRecord{State: st.State, LockFile: st.LockFile, Changes: st.Changes, AllowedUnexplained: st.Allowed}
+	r := &RegistrationRecord{State: st.State, LockFile: st.LockFile, Changes: st.Changes, AllowedUnexplained: st.Allowed, ReplacedLocks: st.Replaced}
 	if r.Changes == nil {
 		r.Changes = []lock.Explained{}
 	}

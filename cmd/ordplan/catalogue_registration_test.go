@@ -60,6 +60,31 @@ func registrationItems(dir string) []badInput {
 			plan:  changed + "deviations:\n  - key: rules[1].choose.by\n    reason: BIC was registered in the protocol\n",
 			setup: func(t *testing.T, dir, id string) { os.Remove(filepath.Join(dir, id+".lock.json")) },
 			want:  []string{`note: deviations: "rules[1].choose.by" (line 15) explains a change, but nothing is frozen: the plan has no lock file (R7.lock.json) whose plan it could depart from`}},
+		{id: "R16", name: "run: a plan frozen anew with freeze --replace", args: []string{"run"}, plan: changed, code: 0,
+			setup: func(t *testing.T, dir, id string) {
+				lp := freezeAs(t, dir, id, goodPlan)
+				if err := os.Rename(lp, lp+".replaced-20261201T090000Z"); err != nil {
+					t.Fatal(err)
+				}
+				freezeAs(t, dir, id, changed)
+			},
+			want: []string{"registered plan: matches R16.lock.json (frozen 2026-12-01T09:00:00Z)\n" +
+				"note: R16.lock.json was frozen anew (ordplan freeze --replace): it replaced the lock kept as R16.lock.json.replaced-20261201T090000Z (frozen 2026-12-01T09:00:00Z, registration TEST-1); the plan run differs from it in 1 key (rules[1].choose.by). The plan counts as registered only from R16.lock.json's time; the report says so\n"},
+			check: func(t *testing.T, dir, out, errs string) {
+				b, _ := os.ReadFile(filepath.Join(dir, "R16-out", "report.md"))
+				for _, w := range []string{"**Frozen anew.** The lock `R16.lock.json` replaced an earlier lock of this plan",
+					"- `R16.lock.json.replaced-20261201T090000Z`, frozen at 2026-12-01T09:00:00Z, registration TEST-1, canonical sha256 `"} {
+					if !strings.Contains(string(b), w) {
+						t.Errorf("report.md lacks %q", w)
+					}
+				}
+				// Without the lock, the kept one still says the plan was frozen.
+				os.Remove(filepath.Join(dir, "R16.lock.json"))
+				o, e, code := runCLI("check", filepath.Join(dir, "R16.yaml"))
+				if code != 0 || !strings.Contains(o, "note: the plan has no lock file (R16.lock.json), but an earlier lock of it is kept beside it: R16.lock.json.replaced-20261201T090000Z") {
+					t.Errorf("check without the lock: exit %d\n%s%s", code, o, e)
+				}
+			}},
 		{id: "R2", name: "lock file edited by hand", args: []string{"check"}, plan: goodPlan, code: 1,
 			setup: func(t *testing.T, dir, id string) {
 				lp := freezeAs(t, dir, id, goodPlan)

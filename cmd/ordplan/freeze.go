@@ -111,7 +111,8 @@ func registration(p *plan.Plan, allow bool, stderr io.Writer) (*lock.Status, int
 // plan's registration: the one-line summary, with changes each change and
 // its reason (check), then a note on each stated deviation that explains
 // no change (R7), a misspelt key or a list left from before a lock was
-// removed, which the report lists too.
+// removed, and on each lock that freeze --replace replaced (R16), which
+// the report lists too.
 func printRegistration(w io.Writer, st *lock.Status, changes bool) {
 	fmt.Fprintln(w, registrationLine(st))
 	if changes {
@@ -121,6 +122,9 @@ func printRegistration(w io.Writer, st *lock.Status, changes bool) {
 	}
 	for _, dv := range st.Unused {
 		fmt.Fprintf(w, "note: %s\n", st.UnusedNote(dv))
+	}
+	for _, r := range st.Replaced {
+		fmt.Fprintf(w, "note: %s\n", st.ReplacedNote(r))
 	}
 }
 

@@ -478,3 +478,45 @@ func TestUnexplainedOf(t *testing.T) {
 		}
 	}
 }
+
+// A plan frozen anew (freeze --replace) carries the replaced locks in its
+// status, oldest first, each with the keys in which the plan differs from
+// it; with the lock gone, the kept one still says the plan was frozen; a
+// kept lock edited by hand is named as unreadable (R16).
+func TestReplacedLocksInStatus(t *testing.T) {
+	changed := strings.Replace(basePlan, "[a, b]", "[a, b2]", 1)
+	p, path := setup(t, changed) // the lock holds basePlan, REG-7
+	later := frozenAt.Add(time.Hour)
+	if _, _, err := Write(New(p, "REG-8", later, "test"), path, true); err != nil {
+		t.Fatal(err)
+	}
+	st, err := Check(p, false)
+	if err != nil || st.State != StateMatches || len(st.Replaced) != 1 {
+		t.Fatalf("status %+v: %v", st, err)
+	}
+	r := st.Replaced[0]
+	if r.File != "p.lock.json.replaced-20261201T093000Z" || r.FrozenAt != "2026-12-01T09:30:00Z" || r.Registration != "REG-7" || !slices.Equal(r.Changed, []string{"predictors"}) || r.Error != "" {
+		t.Errorf("replaced lock: %+v", r)
+	}
+	want := "p.lock.json was frozen anew (ordplan freeze --replace): it replaced the lock kept as p.lock.json.replaced-20261201T093000Z (frozen 2026-12-01T09:30:00Z, registration REG-7); the plan run differs from it in 1 key (predictors). The plan counts as registered only from p.lock.json's time; the report says so"
+	if got := st.ReplacedNote(r); got != want {
+		t.Errorf("note:\n%s\nwant\n%s", got, want)
+	}
+	// The lock removed: none, but the kept lock is still named.
+	os.Remove(PathFor(path))
+	st, err = Check(p, false)
+	if err != nil || st.State != StateNone || len(st.Replaced) != 1 {
+		t.Fatalf("without the lock: %+v: %v", st, err)
+	}
+	if got := st.ReplacedNote(st.Replaced[0]); !strings.HasPrefix(got, "the plan has no lock file (p.lock.json), but an earlier lock of it is kept beside it: p.lock.json.replaced-20261201T093000Z (frozen 2026-12-01T09:30:00Z, registration REG-7); the plan run differs from it in 1 key (predictors). Was the lock removed?") {
+		t.Errorf("note without the lock: %s", got)
+	}
+	// A kept lock edited by hand.
+	kept := filepath.Join(filepath.Dir(path), st.Replaced[0].File)
+	b, _ := os.ReadFile(kept)
+	os.WriteFile(kept, []byte(strings.Replace(string(b), "REG-7", "REG-9", 1)), 0o644)
+	st, _ = Check(p, false)
+	if len(st.Replaced) != 1 || !strings.Contains(st.Replaced[0].Error, "edited by hand") || !strings.Contains(st.ReplacedNote(st.Replaced[0]), "cannot be read") {
+		t.Errorf("an edited kept lock: %+v", st.Replaced)
+	}
+}

@@ -32,6 +32,9 @@ type Status struct {
 	// Allowed is set when unexplained changes were let through by the
 	// command line (--allow-unregistered-changes).
 	Allowed bool
+	// Replaced are the earlier locks of the plan that freeze --replace
+	// kept beside the lock, oldest first (replacedLocks).
+	Replaced []Replaced
 }
 
 // Explained is a change with the reason the plan gives for it ("" if none).
@@ -161,7 +164,7 @@ func CheckVersion(p *plan.Plan, allow bool, version string) (*Status, error) {
 		return nil, err
 	}
 	if _, err := os.Stat(path); errors.Is(err, fs.ErrNotExist) {
-		return &Status{State: StateNone, LockFile: filepath.Base(path), Unused: p.Deviations}, nil
+		return &Status{State: StateNone, LockFile: filepath.Base(path), Unused: p.Deviations, Replaced: replacedLocks(p, path)}, nil
 	}
 	f, err := Read(path)
 	if err != nil {
@@ -171,6 +174,7 @@ func CheckVersion(p *plan.Plan, allow bool, version string) (*Status, error) {
 	if err != nil {
 		return nil, fmt.Errorf("%s: %v", path, err)
 	}
+	st.Replaced = replacedLocks(p, path)
 	if st.State == StateUnexplained {
 		if !allow {
 			return st, &UnexplainedError{Plan: p.Path, Lock: path, Status: st, Version: version}
