@@ -81,7 +81,7 @@ func (l *outputLock) tempDir(pattern string) (string, error) {
 // is taken again on the file now there.
 func lockOutput(dir string) (*outputLock, error) {
 	if fi, err := os.Stat(dir); err == nil && !fi.IsDir() {
-		return nil, fmt.Errorf("output folder %s: exists and is not a folder", dir)
+		return nil, fmt.Errorf("output folder %s: is a file, not a folder; nothing was computed or written, and the file is untouched: give --out a folder (a new one, or an earlier run's)", dir)
 	}
 	path := filepath.Join(dir, lockFile)
 	var made []string

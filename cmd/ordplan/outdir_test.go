@@ -108,7 +108,7 @@ func TestLockOutput(t *testing.T) {
 	l4.Unlock()
 	f := filepath.Join(t.TempDir(), "file")
 	os.WriteFile(f, nil, 0o644)
-	if _, err := lockOutput(f); err == nil || !strings.Contains(err.Error(), "not a folder") {
+	if _, err := lockOutput(f); err == nil || !strings.HasSuffix(err.Error(), ": is a file, not a folder; nothing was computed or written, and the file is untouched: give --out a folder (a new one, or an earlier run's)") {
 		t.Errorf("a file as output folder: %v", err)
 	}
 }
