@@ -135,3 +135,29 @@ func (q *testQueue) coordinator(t *testing.T, log io.Writer) *Coordinator {
 	}
 	return co
 }
+
+// A worker whose context ends (the command's interrupt) says in its last
+// log line that it stopped, not only that it was ready.
+func TestWorkerSaysItStopped(t *testing.T) {
+	url := localserver.ForTest(t)
+	ctx, cancel := context.WithCancel(context.Background())
+	c := connect(t, testContext(t, time.Minute), url)
+	log := &LogBuffer{}
+	w := &Worker{Client: c, Name: "w1", CacheDir: t.TempDir(), Log: log}
+	done := make(chan error, 1)
+	go func() { done <- w.Run(ctx) }()
+	waitFor(t, 10*time.Second, "w1 ready", func() bool { return strings.Contains(log.String(), "ready") })
+	cancel()
+	select {
+	case err := <-done:
+		if err != nil {
+			t.Fatal(err)
+		}
+	case <-time.After(15 * time.Second):
+		t.Fatal("worker did not stop")
+	}
+	lines := strings.Split(strings.TrimSpace(log.String()), "\n")
+	if last := lines[len(lines)-1]; last != "worker w1: stopped; the jobs it had started were finished and their replies stored first" {
+		t.Errorf("last log line: %q", last)
+	}
+}

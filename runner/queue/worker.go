@@ -72,6 +72,9 @@ func (w *Worker) Run(ctx context.Context) error {
 		}()
 	}
 	wg.Wait()
+	// Run ends when ctx does (the command's interrupt): say so, so that the
+	// log of a stopped worker does not end as if it were waiting for jobs.
+	w.logf("worker %s: stopped; the jobs it had started were finished and their replies stored first", w.Name)
 	return nil
 }
 
