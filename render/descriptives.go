@@ -116,12 +116,15 @@ func writeDescriptives(d *doc, or *runner.OutcomeResult, sampling bool) {
 	if len(ds) > 0 {
 		lv := or.Data.Categories
 		weighted := ""
+		rowsWord := "rows" // what the n of a partly observed predictor counts
 		switch {
 		case describedData(or).Weights == nil:
 		case sampling:
 			weighted = " Counts, means and SDs are weighted by the sampling weights, rescaled to sum to the number of rows."
+			rowsWord = "weighted rows"
 		default:
 			weighted = " Counts, means and SDs are weighted by the frequency weights."
+			rowsWord = "observations"
 		}
 		total := categoryTotals(describedData(or))
 		partly := false // some predictor is missing in rows of some category
@@ -132,7 +135,7 @@ func writeDescriptives(d *doc, or *runner.OutcomeResult, sampling bool) {
 		}
 		counted := ""
 		if partly {
-			counted = " A predictor is summarized over the rows where it is observed: where it is missing in some rows of a category, the cell names the rows it counts, \"k of n (share)\" for a count (n the rows with the predictor observed, the share's denominator) and \"mean (SD), n rows\" for a mean."
+			counted = fmt.Sprintf(" A predictor is summarized over the rows where it is observed: where it is missing in some rows of a category, the cell names the %[1]s it counts, \"k of n (share)\" for a count (n the %[1]s with the predictor observed, the share's denominator) and \"mean (SD), n %[1]s\" for a mean.", rowsWord)
 		}
 		d.p("Each predictor in each outcome category: mean (SD) for a numeric predictor; for a 0/1 predictor and for each level of a categorical one, the number of observations with 1 (with that level) and their share of the category's observations.%s%s", counted, weighted)
 		head := []string{"Predictor"}
@@ -142,8 +145,9 @@ func writeDescriptives(d *doc, or *runner.OutcomeResult, sampling bool) {
 		head = append(head, "All")
 		var counts [][]float64
 		for _, s := range ds {
+			counts = append(counts, s.N)
 			if s.Counts {
-				counts = append(counts, s.Ones, s.N)
+				counts = append(counts, s.Ones)
 			}
 		}
 		count := countText(counts, nil) // weighted counts to one decimal, all alike
@@ -158,7 +162,7 @@ func writeDescriptives(d *doc, or *runner.OutcomeResult, sampling bool) {
 				case s.Counts:
 					row = append(row, fmt.Sprintf("%s (%s%%)", count(s.Ones[c]), numfmt.Fixed(100*s.Mean[c], 1)))
 				case missing:
-					row = append(row, fmt.Sprintf("%s (%s), %s rows", numfmt.Summary(s.Mean[c]), numfmt.Summary(s.SD[c]), numfmt.Num(s.N[c])))
+					row = append(row, fmt.Sprintf("%s (%s), %s %s", numfmt.Summary(s.Mean[c]), numfmt.Summary(s.SD[c]), count(s.N[c]), rowsWord))
 				default:
 					row = append(row, fmt.Sprintf("%s (%s)", numfmt.Summary(s.Mean[c]), numfmt.Summary(s.SD[c])))
 				}

@@ -612,3 +612,64 @@ inference:
 		}
 	}
 }
+
+// The same with frequency weights: the n of a partly observed predictor is
+// a sum of weights, observations, not rows (it read "1072 rows" of 543).
+// Sums by hand from the invented file.
+func TestDescriptivesWeightedCountObservations(t *testing.T) {
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(8, 3))
+	var orig, stacked strings.Builder
+	orig.WriteString("y,x,w\n")
+	stacked.WriteString("imp,y,x,w\n")
+	obs := map[int]int{}
+	type row struct {
+		y, w int
+		x    float64
+		mx   bool
+	}
+	var rows []row
+	for range 150 {
+		x := rng.NormFloat64()
+		r := row{min(2, max(0, int(1+0.8*x+rng.NormFloat64()))), 1 + rng.IntN(3), x, rng.Float64() < 0.2}
+		rows = append(rows, r)
+		sx := strconv.FormatFloat(x, 'f', 4, 64)
+		if r.mx {
+			sx = ""
+		} else {
+			obs[r.y] += r.w
+		}
+		fmt.Fprintf(&orig, "%d,%s,%d\n", r.y, sx, r.w)
+	}
+	for k := 1; k <= 2; k++ {
+		for _, r := range rows {
+			x := r.x
+			if r.mx {
+				x = rng.NormFloat64()
+			}
+			fmt.Fprintf(&stacked, "%d,%d,%.4f,%d\n", k, r.y, x, r.w)
+		}
+	}
+	os.WriteFile(filepath.Join(dir, "orig.csv"), []byte(orig.String()), 0o644)
+	os.WriteFile(filepath.Join(dir, "stacked.csv"), []byte(stacked.String()), 0o644)
+	md := string(renderSource(t, dir, `version: 1
+title: descriptives
+data: {file: orig.csv, weights: w, imputed: {file: stacked.csv, column: imp}}
+outcomes: [{column: y}]
+predictors: [x]
+models: {approaches: [cumulative], effects: [parallel]}
+rules:
+  - choose: {by: bic}
+`, 2)["report.md"])
+	hasAll(t, "report.md", md, `the cell names the observations it counts, "k of n (share)" for a count (n the observations with the predictor observed, the share's denominator) and "mean (SD), n observations" for a mean`)
+	for c := 0; c < 3; c++ {
+		if want := ", " + strconv.Itoa(obs[c]) + " observations |"; !strings.Contains(md, want) {
+			t.Errorf("report.md lacks %q for category %d", want, c)
+		}
+	}
+	for _, l := range strings.Split(md, "\n") {
+		if strings.HasPrefix(l, "| x |") && strings.Contains(l, " rows") {
+			t.Errorf("the predictors by outcome category count weighted observations as rows: %s", l)
+		}
+	}
+}
