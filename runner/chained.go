@@ -395,7 +395,7 @@ func chainedLevels(r Reading, ds *data.Dataset) [][]string {
 
 // unlinkedLevels finds, for each incomplete column of cols and each level
 // of another column with levels (labels: each column's level labels, nil
-// for a numeric one), the level at which the column is observed in no
+// for a numeric one; cols[0] is the outcome), the level at which the column is observed in no
 // row though some rows there miss it: say the outcome is missing in every
 // row of a group. Nothing in the data then links the column to that
 // level: what the imputed sets hold for it there comes from the
@@ -424,9 +424,15 @@ func unlinkedLevels(cols []chained.Column, labels [][]string) []string {
 					both[int(v)]++
 				}
 			}
+			// The effect of a level is an estimate of the analysis when the
+			// column with levels is a predictor (cols[0] is the outcome).
+			such := " (such as the effect of that level)"
+			if k == 0 {
+				such = ""
+			}
 			for l, n := range missing {
 				if n > 0 && both[l] == 0 {
-					out = append(out, fmt.Sprintf("%s is missing in all %d rows where %s is %s: nothing in the data links %s to %s = %s, so its imputed values there, and every estimate that involves both (such as the effect of that level), come from the imputation models alone, not from the data", col.Name, n, by.Name, labels[k][l], col.Name, by.Name, labels[k][l]))
+					out = append(out, fmt.Sprintf("%s is missing in all %d rows where %s is %s: nothing in the data links %s to %s = %s, so its imputed values there, and every estimate that involves both%s, come from the imputation models alone, not from the data", col.Name, n, by.Name, labels[k][l], col.Name, by.Name, labels[k][l], such))
 				}
 			}
 		}

@@ -262,7 +262,7 @@ func TestUnlinkedLevels(t *testing.T) {
 	got := unlinkedLevels(cols, labels)
 	want := []string{
 		"y is missing in all 2 rows where g is c: nothing in the data links y to g = c, so its imputed values there, and every estimate that involves both (such as the effect of that level), come from the imputation models alone, not from the data",
-		"x is missing in all 2 rows where y is hi: nothing in the data links x to y = hi, so its imputed values there, and every estimate that involves both (such as the effect of that level), come from the imputation models alone, not from the data",
+		"x is missing in all 2 rows where y is hi: nothing in the data links x to y = hi, so its imputed values there, and every estimate that involves both, come from the imputation models alone, not from the data",
 	}
 	if !slices.Equal(got, want) {
 		t.Errorf("got\n%s\nwant\n%s", strings.Join(got, "\n"), strings.Join(want, "\n"))
