@@ -382,6 +382,10 @@ func compareColumns(was, now OutcomeColumns) (pairs []columnPair, kind []int, mo
 func outcomeColumnChanges(was, now OutcomeColumns) []string {
 	pairs, kind, moved, changed, unpaired := compareColumns(was, now)
 	who := now.Outcome + ": "
+	renamed, unpaired := renamedColumns(was, now, unpaired)
+	for i := range renamed {
+		renamed[i] = who + renamed[i]
+	}
 	// Rows that differ where no column compared differs differ in a
 	// column the earlier record does not hold (not read then, or not in
 	// this role, or a record edited since): whether it changed cannot be
@@ -391,15 +395,18 @@ func outcomeColumnChanges(was, now OutcomeColumns) []string {
 		notCompared = fmt.Sprintf("%s%s %s, which this run reads (that run did not read %s in this role, or its record was edited since), so whether %s changed cannot be said", who, notComparedLead, strings.Join(unpaired, ", "), pronoun(len(unpaired), "it", "them"), pronoun(len(unpaired), "it", "they"))
 	}
 	if changed == 0 && moved == 0 && notCompared != "" {
-		return []string{notCompared + "; no column both runs read changed in the rows used"}
+		return append(renamed, notCompared+"; no column both runs read changed in the rows used")
+	}
+	if changed == 0 && moved == 0 && len(renamed) > 0 {
+		return append(renamed, who+"no other column this outcome uses changed in the rows it uses")
 	}
 	if changed == 0 && moved == 0 {
 		return []string{who + noColumnChanged + " (the data changed in columns it does not read, or in rows it does not use: outside the subset, or dropped for a missing value)"}
 	}
 	if changed == 0 && sameRows(was, now) {
-		return []string{fmt.Sprintf("%sthe %d%s: no value of a column changed (a reordering of the rows changes no fit beyond rounding in the last digits, so no column is named)", who, now.Rows, rowsReordered)}
+		return append(renamed, fmt.Sprintf("%sthe %d%s: no value of a column changed (a reordering of the rows changes no fit beyond rounding in the last digits, so no column is named)", who, now.Rows, rowsReordered))
 	}
-	var out []string
+	out := renamed
 	for i, p := range pairs {
 		lead := fmt.Sprintf("%scolumn %s (%s) changed: ", who, p.now.Column, p.now.Role)
 		switch d := summaryChanges(p.was, p.now); {
@@ -416,6 +423,33 @@ func outcomeColumnChanges(was, now OutcomeColumns) []string {
 		out = append(out, notCompared)
 	}
 	return out
+}
+
+// renamedColumns finds, among the later record's columns the earlier one
+// does not hold (unpaired, "COLUMN (ROLE)"), those whose values are row
+// for row those of a column of the earlier record, in the same role, that
+// the later one does not hold: the same column under a new name (an
+// export that renamed it, and the plan following it). It words each and
+// returns the unpaired columns left.
+func renamedColumns(was, now OutcomeColumns, unpaired []string) (renamed, left []string) {
+	label := func(c ColumnPrint) string { return fmt.Sprintf("%s (%s)", c.Column, c.Role) }
+	for _, u := range unpaired {
+		i := slices.IndexFunc(now.Columns, func(c ColumnPrint) bool { return label(c) == u })
+		j := -1
+		if i >= 0 {
+			c := now.Columns[i]
+			j = slices.IndexFunc(was.Columns, func(w ColumnPrint) bool {
+				return w.Role == c.Role && w.ValuesSHA256 == c.ValuesSHA256 && w.Values == c.Values &&
+					!slices.ContainsFunc(now.Columns, func(o ColumnPrint) bool { return label(o) == label(w) })
+			})
+		}
+		if j < 0 {
+			left = append(left, u)
+			continue
+		}
+		renamed = append(renamed, fmt.Sprintf("column %s holds, row for row, the values that column %s held in the earlier run: the same column under another name", u, was.Columns[j].Column))
+	}
+	return renamed, left
 }
 
 // rowsReordered is the words of the line of rows that are the same in

@@ -106,3 +106,32 @@ func TestColumnChanges(t *testing.T) {
 		t.Errorf("RecordChanges, reordered: %q", got)
 	}
 }
+
+// A column renamed in the data (and in the plan), its values the same row
+// for row, is said to be the same column under another name, not a column
+// whose change cannot be told; a renamed column whose values changed too
+// is not.
+func TestColumnChangesRenamed(t *testing.T) {
+	y := []int{0, 1, 0, 1, 1}
+	x := []float64{40, 50, 43, 60, 70}
+	g := []float64{0, 1, 1, 0, 0}
+	w := []float64{1, 1, 1, 1, 1}
+	c := []string{"k1", "k1", "k2", "k2", "k3"}
+	base := printOf(y, x, g, w, c, 0)
+	renamed := printOf(y, x, g, w, c, 0)
+	renamed.Columns[1].Column = "x_new"
+	got := strings.Join(ColumnChanges([]OutcomeColumns{base}, []OutcomeColumns{renamed}), "\n")
+	want := "y: column x_new (predictor) holds, row for row, the values that column x held in the earlier run: the same column under another name\n" +
+		"y: no other column this outcome uses changed in the rows it uses"
+	if got != want {
+		t.Errorf("renamed:\n got %s\nwant %s", got, want)
+	}
+	x2 := append([]float64(nil), x...)
+	x2[2] = 34
+	other := printOf(y, x2, g, w, c, 0)
+	other.Columns[1].Column = "x_new"
+	got = strings.Join(ColumnChanges([]OutcomeColumns{base}, []OutcomeColumns{other}), "\n")
+	if strings.Contains(got, "under another name") || !strings.Contains(got, "x_new (predictor)") {
+		t.Errorf("renamed and changed:\n%s", got)
+	}
+}
