@@ -106,6 +106,17 @@ func chosenConfidence(r *runner.Result, or *runner.OutcomeResult) (level, q floa
 	return confidenceOf(r, or.Chosen.Result)
 }
 
+// unlinkedShort names the pairs of runner.ChainedRecord.Unlinked by their
+// first clause ("y is missing in all 120 rows where g is w"), joined.
+func unlinkedShort(unlinked []string) string {
+	var out []string
+	for _, u := range unlinked {
+		first, _, _ := strings.Cut(u, ":")
+		out = append(out, first)
+	}
+	return strings.Join(out, "; ")
+}
+
 // writeSummary says up front which model each outcome ended with.
 func writeSummary(d *doc, r *runner.Result) {
 	d.h(2, "Summary")
@@ -126,6 +137,9 @@ func writeSummary(d *doc, r *runner.Result) {
 			} else {
 				item += fmt.Sprintf(" **Its cluster-robust standard errors rest on %d clusters of %s, fewer than %d: they tend to be too small even on t(G-1) and F(q, G-q) references, and joint Wald tests of more than %d restrictions are not computed** (see the notes under The models).", g, mdCode(r.Plan.Data.Cluster), fit.FewClusters, g-1)
 			}
+		}
+		if im := or.Imputed; im != nil && im.Chained != nil && len(im.Chained.Unlinked) > 0 {
+			item += fmt.Sprintf(" **Some of its imputed values no observed data inform** (%s): the estimates that involve them restate the imputation models, not the data (see Multiple imputation).", mdText(unlinkedShort(im.Chained.Unlinked)))
 		}
 		items = append(items, item)
 	}
