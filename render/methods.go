@@ -256,6 +256,10 @@ func registeredText(st *lock.Status) string {
 	if st == nil {
 		return ""
 	}
+	first := firstReplaced(st)
+	if (st.State == lock.StateNone || st.Lock == nil) && first != nil {
+		return fmt.Sprintf("; its lock file is missing, though a lock of an earlier form of the plan, frozen on %s%s, lies beside it (%s)", first.FrozenAt, registrationOf(first.Registration), keysDiffer(first))
+	}
 	if st.State == lock.StateNone || st.Lock == nil {
 		return "; the plan was not frozen in a lock file, so the report cannot show when it was written"
 	}
@@ -264,6 +268,9 @@ func registeredText(st *lock.Status) string {
 		s += ", registration " + st.Lock.Registration
 	}
 	s += fmt.Sprintf(", canonical SHA-256 %s", short(st.Lock.SHA256))
+	if first != nil {
+		s += fmt.Sprintf("; the plan was first frozen on %s%s and frozen anew since (%s; listed at the head of the report)", first.FrozenAt, registrationOf(first.Registration), keysDiffer(first))
+	}
 	switch st.State {
 	case lock.StateDeviations:
 		s += fmt.Sprintf("; the plan run departs from the frozen one in %d key%s, each with a stated reason listed at the head of the report", len(st.Changes), plural(len(st.Changes)))
@@ -271,6 +278,33 @@ func registeredText(st *lock.Status) string {
 		s += fmt.Sprintf("; the plan run departs from the frozen one in %d key%s, %d of them without a stated reason", len(st.Changes), plural(len(st.Changes)), st.Unexplained())
 	}
 	return s
+}
+
+// firstReplaced is the oldest readable lock that freeze --replace kept
+// beside the plan's lock (nil: none).
+func firstReplaced(st *lock.Status) *lock.Replaced {
+	for i := range st.Replaced {
+		if st.Replaced[i].Error == "" {
+			return &st.Replaced[i]
+		}
+	}
+	return nil
+}
+
+// registrationOf is " (registration ID)", or "" for a lock without one.
+func registrationOf(id string) string {
+	if id == "" {
+		return ""
+	}
+	return " (registration " + id + ")"
+}
+
+// keysDiffer says how the plan run differs from a replaced lock's form.
+func keysDiffer(r *lock.Replaced) string {
+	if len(r.Changed) == 0 {
+		return "the plan run has that form, key for key"
+	}
+	return "the plan run differs from that form in " + words.Count(len(r.Changed), "key", "keys")
 }
 
 func short(h string) string {

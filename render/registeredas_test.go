@@ -25,6 +25,11 @@ func TestMethodsNameTheRegistration(t *testing.T) {
 			"; frozen on 2026-01-02T03:04:05Z, registration REG-7, canonical SHA-256 0123456789ab; the plan run departs from the frozen one in 1 key, each with a stated reason listed at the head of the report"},
 		{&lock.Status{State: lock.StateUnexplained, Lock: f, Changes: []lock.Explained{{Change: lock.Change{Path: "seed"}, Reason: "why"}, {Change: lock.Change{Path: "title"}}}},
 			"; the plan run departs from the frozen one in 2 keys, 1 of them without a stated reason"},
+		{&lock.Status{State: lock.StateMatches, Lock: f, Replaced: []lock.Replaced{{File: "p.lock.json.replaced-x", Error: "edited by hand"},
+			{File: "p.lock.json.replaced-y", FrozenAt: "2025-12-01T00:00:00Z", Registration: "REG-6", Changed: []string{"seed", "title"}}}},
+			"; frozen on 2026-01-02T03:04:05Z, registration REG-7, canonical SHA-256 0123456789ab; the plan was first frozen on 2025-12-01T00:00:00Z (registration REG-6) and frozen anew since (the plan run differs from that form in 2 keys; listed at the head of the report)"},
+		{&lock.Status{State: lock.StateNone, LockFile: "p.lock.json", Replaced: []lock.Replaced{{File: "p.lock.json.replaced-y", FrozenAt: "2025-12-01T00:00:00Z", Changed: []string{}}}},
+			"; its lock file is missing, though a lock of an earlier form of the plan, frozen on 2025-12-01T00:00:00Z, lies beside it (the plan run has that form, key for key)"},
 	} {
 		got := registeredAs(&runner.Result{Registration: tc.st})
 		if tc.want == "" && got != "" || !strings.HasSuffix(got, tc.want) {
