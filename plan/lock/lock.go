@@ -169,6 +169,10 @@ func Read(path string) (*File, error) {
 	if err != nil {
 		return nil, err
 	}
+	// A byte order mark that an editor saving the file added (as plans and
+	// data files may start with one) is no edit of the lock: its checksum
+	// covers the content, which JSON reads alike with CRLF line ends too.
+	b = bytes.TrimPrefix(b, []byte("\ufeff"))
 	var f File
 	dec := json.NewDecoder(bytes.NewReader(b))
 	dec.DisallowUnknownFields()

@@ -520,3 +520,23 @@ func TestReplacedLocksInStatus(t *testing.T) {
 		t.Errorf("an edited kept lock: %+v", st.Replaced)
 	}
 }
+
+// A lock saved again by an editor that adds a byte order mark, or turns
+// the line ends into CRLF (a Windows checkout), is read as the same lock;
+// a change of its content is still an edit (R2).
+func TestLockSavedWithBOMAndCRLF(t *testing.T) {
+	p, path := setup(t, basePlan)
+	lp := PathFor(path)
+	b, _ := os.ReadFile(lp)
+	saved := "\ufeff" + strings.ReplaceAll(string(b), "\n", "\r\n")
+	if err := os.WriteFile(lp, []byte(saved), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if st, err := Check(p, false); err != nil || st.State != StateMatches {
+		t.Fatalf("a lock with a BOM and CRLF: %+v %v", st, err)
+	}
+	os.WriteFile(lp, []byte(strings.Replace(saved, "REG-7", "REG-8", 1)), 0o644)
+	if _, err := Check(p, false); err == nil || !strings.Contains(err.Error(), "edited by hand") {
+		t.Errorf("an edited lock with a BOM: %v", err)
+	}
+}
