@@ -174,6 +174,16 @@ func newtonLoopStop(theta0 []float64, maxIter int, ev evalFunc, stop stopFunc) n
 			st.reason = "iteration limit reached"
 			return st
 		}
+		// A run whose start is already at a maximum as far as the rule
+		// goes (a decrement of at most 1e-10 |LL| there, as at the maximum
+		// of a constrained model's approximation from the fit that nests
+		// it, or at an earlier fit's estimates) takes its step with second
+		// derivatives, and ends at the point reached when that point's own
+		// decrement confirms it (at most 1e-16 |LL|, the bound at which the
+		// rule ends at once, as lastStepReused ends): one pass fewer than
+		// the step for the score alone and the last step after it.
+		// Otherwise the iterations go on from there.
+		confirm := it == 0 && pd && dec <= 1e-10*scale
 		// Step halving: accept the first step that raises the log-likelihood
 		// and keeps every observed category's probability positive. The
 		// full step is evaluated with derivatives, since it is nearly always
@@ -186,7 +196,7 @@ func newtonLoopStop(theta0 []float64, maxIter int, ev evalFunc, stop stopFunc) n
 			order := 0
 			if h == 0 {
 				order = 2
-				if pd && dec <= 1e-8*scale {
+				if pd && dec <= 1e-8*scale && !confirm {
 					order = 1
 				}
 			}
@@ -197,6 +207,15 @@ func newtonLoopStop(theta0 []float64, maxIter int, ev evalFunc, stop stopFunc) n
 				break
 			}
 			step /= 2
+		}
+		if confirm && next != nil && next.order == 2 && !next.bad {
+			if _, own, opd := newtonDirection(next.H, next.g); opd && own <= 1e-16*scale {
+				st.theta, st.ll, st.grad, st.hess, st.iters = theta, next.ll, next.g, next.H, it+1
+				st.minLogP, st.minKnown = next.minLogP, next.minKnown
+				st.converged = true
+				st.reason = "converged"
+				return st
+			}
 		}
 		if next == nil {
 			st.reason = "no step raises the log-likelihood"
