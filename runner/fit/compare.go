@@ -271,6 +271,10 @@ func (k *kernel) adjacent(L []float64, c int, g, h []float64) (float64, bool) {
 			ps[m], dps[m], d2ps[m] = L[m], 1, 0
 			continue
 		}
+		if v, d1, d2, ok := k.link.ratio(L[m]); ok {
+			ps[m], dps[m], d2ps[m] = v, d1, d2
+			continue
+		}
 		lo, up := k.link.lower(L[m]), k.link.upper(L[m])
 		// Far in a tail one of the logs overflows: keep psi finite (the
 		// probabilities are then exactly 0 on one side) so that sums of psi

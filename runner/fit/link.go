@@ -68,7 +68,7 @@ func (l Link) lower(z float64) tail {
 		// d a/dz = a - u*a*e^u/(e^u-1) = a*(1 - u/F) = -a*bend(u)*(u/F),
 		// F - u = -(e^-u - 1 + u): written so, the bracket does not cancel
 		// while u is small (1 - u/F is about -u/2 there).
-		d2 := -a * bend(u) * (u / F)
+		d2 := -a * bendOf(u, F) * (u / F)
 		if a == 0 {
 			d2 = 0
 		}
@@ -103,6 +103,50 @@ func (l Link) upper(z float64) tail {
 		return tail{t.v, -t.d1, t.d2}
 	}
 	panic("fit: unknown link")
+}
+
+// ratio returns psi = log F(z) - log(1-F(z)), the log-odds of the
+// adjacent comparison's pair of categories, and its first two derivatives
+// in z: lower(z) less upper(z), formed for the probit and cloglog links
+// from what the two tails share, with the kernels' exponential and
+// logarithm (fastExp, fastLog). ok is false for the other links and far
+// in the tails (|z| > 30 for the probit; e^z below 1e-300 or above 700
+// for the cloglog), where the caller takes lower and upper.
+//
+// Probit: P = Phi(z), Q = Phi(-z) = 1 - P from one erfc of the smaller
+// tail (the larger, at least 1/2, as 1 minus it, without cancellation),
+// the density phi once; psi = log(P/Q), its first derivative phi/P +
+// phi/Q and its second phi/Q (phi/Q - z) - phi/P (z + phi/P), lower's and
+// upper's terms.
+//
+// Cloglog: u = e^z, F = 1 - e^-u, psi = log F + u; its first derivative
+// u/F (lower's a = u e^-u / F plus upper's u), its second u - a bend(u)
+// u/F (lower's second derivative, see lower, plus upper's u).
+func (l Link) ratio(z float64) (v, d1, d2 float64, ok bool) {
+	switch l {
+	case Probit:
+		a := math.Abs(z)
+		if !(a <= 30) {
+			return 0, 0, 0, false
+		}
+		small := 0.5 * math.Erfc(a/math.Sqrt2)
+		large := 1 - small
+		neg := z < 0
+		P, Q := pick(neg, small, large), pick(neg, large, small)
+		phi := fastExp(-0.5*z*z - logHalfTwoPi)
+		lp, lq := phi/P, phi/Q
+		return fastLog(P / Q), lp + lq, lq*(lq-z) - lp*(z+lp), true
+	case Cloglog:
+		u := fastExp(z)
+		if !(u >= 1e-300 && u <= 700) {
+			return 0, 0, 0, false
+		}
+		F := -math.Expm1(-u)
+		a := u * fastExp(-u) / F
+		r := u / F
+		return fastLog(F) + u, r, u - a*bendOf(u, F)*r, true
+	}
+	return 0, 0, 0, false
 }
 
 // cdf returns F(z).
@@ -374,6 +418,16 @@ var bendTerms = func() (c [16]float64) {
 // e^-u - 1 + u is at least a fifth of u (a few ulp).
 func bend(u float64) float64 {
 	if u < 0.5 {
+		return bendOf(u, 0)
+	}
+	return (math.Expm1(-u) + u) / u
+}
+
+// bendOf is bend(u) with F = 1 - e^-u at hand (= -expm1(-u), as lower
+// forms it), which it takes from 1/2 on instead of a second expm1: the
+// same value, bit for bit.
+func bendOf(u, F float64) float64 {
+	if u < 0.5 {
 		c := &bendTerms
 		s := c[len(c)-1]
 		for m := len(c) - 2; m >= 0; m-- {
@@ -381,5 +435,5 @@ func bend(u float64) float64 {
 		}
 		return u / 2 * s
 	}
-	return (math.Expm1(-u) + u) / u
+	return (u - F) / u
 }

@@ -289,6 +289,51 @@ func TestLinkTailsShared(t *testing.T) {
 	}
 }
 
+// TestLinkRatio checks the adjacent comparison's log-odds of a pair of
+// categories as Link.ratio forms it for the probit and cloglog links (one
+// erfc or expm1 shared by both tails, the kernels' exp and log) against
+// the two tails formed apart with package math, lower(z) - upper(z), over
+// the grid: the value and first derivative within 2e-15 of max(1, |x|),
+// the second within 2e-15 (1 + z^2) of it (far in the probit's tails the
+// second derivative is a difference of terms about z^2 apart in size, in
+// either form); and ok exactly where the fast ranges hold. (The finite
+// differences of TestScoreAndInformationFiniteDifferences and the R
+// cross-check's binary glm, which the adjacent model with two categories
+// equals, check the derivatives and the values against outside sources.)
+func TestLinkRatio(t *testing.T) {
+	for _, l := range []Link{Probit, Cloglog} {
+		for _, z := range logitGrid() {
+			v, d1, d2, ok := l.ratio(z)
+			want := math.Abs(z) <= 30
+			if l == Cloglog {
+				u := fastExp(z)
+				want = u >= 1e-300 && u <= 700
+			}
+			if ok != want {
+				t.Fatalf("%s ratio(%g): ok %v, want %v", l, z, ok, want)
+			}
+			if !ok {
+				continue
+			}
+			lo, up := l.lower(z), l.upper(z)
+			for i, c := range []struct{ got, want, tol float64 }{
+				{v, lo.v - up.v, 2e-15},
+				{d1, lo.d1 - up.d1, 2e-15},
+				{d2, lo.d2 - up.d2, 2e-15 * (1 + z*z)},
+			} {
+				if e := math.Abs(c.got - c.want); !(e <= c.tol*math.Max(1, math.Abs(c.want))) {
+					t.Errorf("%s ratio(%g): derivative %d %.17g, from the two tails %.17g", l, z, i, c.got, c.want)
+				}
+			}
+		}
+	}
+	for _, l := range []Link{Logit, Loglog, Cauchy} {
+		if _, _, _, ok := l.ratio(0.5); ok {
+			t.Errorf("%s: ratio is formed for the probit and cloglog links only", l)
+		}
+	}
+}
+
 // TestCloglogLowerCurvature: the cloglog lower tail's second derivative,
 // d2 = a (1 - u/F) with u = e^z, a = u/(e^u - 1), F = 1 - e^-u, formed as
 // -a bend(u) (u/F) so that the bracket does not cancel while u is small,
