@@ -17,6 +17,13 @@ const oneBoundary = "With two categories there is one boundary, so every predict
 // (runner.OutcomeResult.OneBoundary).
 func binary(or *runner.OutcomeResult) bool { return or.OneBoundary() }
 
+// blockApproach names the approach of a block of tests as its models are
+// named (stage_backward under a backward plan), in the report's headings
+// and in table-tests' approach column alike.
+func blockApproach(backward bool, a fit.Comparison) string {
+	return fit.Model{Comparison: a, Backward: backward && a == fit.Stage}.ComparisonName()
+}
+
 // backward is the plan's stage direction: the tests of a backward stage
 // model are headed by the name its models carry (stage_backward), as in
 // every table of models.
@@ -31,7 +38,7 @@ func writeTests(d *doc, backward bool, or *runner.OutcomeResult) {
 		d.p("%s", s)
 	}
 	for _, tb := range or.Tests {
-		approach := fit.Model{Comparison: tb.Approach, Backward: backward && tb.Approach == fit.Stage}.ComparisonName()
+		approach := blockApproach(backward, tb.Approach)
 		d.h(4, approach+", "+tb.Link.String())
 		var rows [][]string
 		var warned poolingWarnings

@@ -337,16 +337,17 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		rows = append(rows, append(row, csvNum(t.P), note))
 	}
 	for _, tb := range or.Tests {
+		approach := blockApproach(r.Plan.Models.Backward(), tb.Approach)
 		for _, t := range tb.Global {
-			testRow("parallel_lines", tb.Approach.String(), tb.Link.String(), "all predictors", t)
+			testRow("parallel_lines", approach, tb.Link.String(), "all predictors", t)
 		}
 		for _, vt := range tb.PerVariable {
 			for _, t := range vt.Tests {
-				testRow("parallel_lines", tb.Approach.String(), tb.Link.String(), vt.Predictor, t)
+				testRow("parallel_lines", approach, tb.Link.String(), vt.Predictor, t)
 			}
 		}
 		for _, nt := range tb.Nested {
-			testRow("nested_lr", tb.Approach.String(), tb.Link.String(), nt.Restricted+" within "+nt.Full, nt.Test)
+			testRow("nested_lr", approach, tb.Link.String(), nt.Restricted+" within "+nt.Full, nt.Test)
 		}
 	}
 	for _, ov := range or.Overall {
