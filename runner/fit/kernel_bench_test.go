@@ -91,12 +91,12 @@ func atMarginalCutpoints(tb testing.TB, d *Data, m Model) (*problem, []float64) 
 }
 
 // BenchmarkAdjacentLinkKernels is BenchmarkBlockKernels for the adjacent
-// comparison (J = 5, parallel effects, K = 10) under the logit, probit and
-// cloglog links: CPU ns per block of 4096 rows with derivatives of both
-// orders (probit and cloglog form each equation's log-odds with
+// comparison (J = 5, parallel effects, K = 10) under the logit, probit,
+// cloglog and loglog links: CPU ns per block of 4096 rows with derivatives
+// of both orders (the last three form each equation's log-odds with
 // Link.ratio).
 func BenchmarkAdjacentLinkKernels(b *testing.B) {
-	for _, l := range []Link{Logit, Probit, Cloglog} {
+	for _, l := range []Link{Logit, Probit, Cloglog, Loglog} {
 		d := speedData(blockRows, 10, 5)
 		m := speedModel(Adjacent, Parallel, 10)
 		m.Link = l

@@ -109,9 +109,10 @@ func (l Link) upper(z float64) tail {
 // adjacent comparison's pair of categories, and its first two derivatives
 // in z: lower(z) less upper(z), formed for the probit and cloglog links
 // from what the two tails share, with the kernels' exponential and
-// logarithm (fastExp, fastLog). ok is false for the other links and far
-// in the tails (|z| > 30 for the probit; e^z below 1e-300 or above 700
-// for the cloglog), where the caller takes lower and upper.
+// logarithm (fastExp, fastLog), and for the loglog link as the cloglog's
+// mirror image. ok is false for the other links and far in the tails
+// (|z| > 30 for the probit; e^z below 1e-300 or above 700 for the
+// cloglog, e^-z for the loglog), where the caller takes lower and upper.
 //
 // Probit: P = Phi(z), Q = Phi(-z) = 1 - P from one erfc of the smaller
 // tail (the larger, at least 1/2, as 1 minus it, without cancellation),
@@ -145,6 +146,10 @@ func (l Link) ratio(z float64) (v, d1, d2 float64, ok bool) {
 		a := u * fastExp(-u) / F
 		r := u / F
 		return fastLog(F) + u, r, u - a*bendOf(u, F)*r, true
+	case Loglog:
+		// F(z) = 1 - F_cloglog(-z): psi(z) = -psi_cloglog(-z).
+		v, d1, d2, ok := Cloglog.ratio(-z)
+		return -v, d1, -d2, ok
 	}
 	return 0, 0, 0, false
 }

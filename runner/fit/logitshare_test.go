@@ -290,10 +290,10 @@ func TestLinkTailsShared(t *testing.T) {
 }
 
 // TestLinkRatio checks the adjacent comparison's log-odds of a pair of
-// categories as Link.ratio forms it for the probit and cloglog links (one
-// erfc or expm1 shared by both tails, the kernels' exp and log) against
-// the two tails formed apart with package math, lower(z) - upper(z), over
-// the grid: the value and first derivative within 2e-15 of max(1, |x|),
+// categories as Link.ratio forms it for the probit, cloglog and loglog
+// links (one erfc or expm1 shared by both tails, the kernels' exp and log)
+// against the two tails formed apart with package math, lower(z) -
+// upper(z), over the grid: the value and first derivative within 2e-15 of max(1, |x|),
 // the second within 2e-15 (1 + z^2) of it (far in the probit's tails the
 // second derivative is a difference of terms about z^2 apart in size, in
 // either form); and ok exactly where the fast ranges hold. (The finite
@@ -301,12 +301,16 @@ func TestLinkTailsShared(t *testing.T) {
 // cross-check's binary glm, which the adjacent model with two categories
 // equals, check the derivatives and the values against outside sources.)
 func TestLinkRatio(t *testing.T) {
-	for _, l := range []Link{Probit, Cloglog} {
+	for _, l := range []Link{Probit, Cloglog, Loglog} {
 		for _, z := range logitGrid() {
 			v, d1, d2, ok := l.ratio(z)
 			want := math.Abs(z) <= 30
-			if l == Cloglog {
+			switch l {
+			case Cloglog:
 				u := fastExp(z)
+				want = u >= 1e-300 && u <= 700
+			case Loglog:
+				u := fastExp(-z)
 				want = u >= 1e-300 && u <= 700
 			}
 			if ok != want {
@@ -327,9 +331,9 @@ func TestLinkRatio(t *testing.T) {
 			}
 		}
 	}
-	for _, l := range []Link{Logit, Loglog, Cauchy} {
+	for _, l := range []Link{Logit, Cauchy} {
 		if _, _, _, ok := l.ratio(0.5); ok {
-			t.Errorf("%s: ratio is formed for the probit and cloglog links only", l)
+			t.Errorf("%s: ratio is formed for the probit, cloglog and loglog links only", l)
 		}
 	}
 }
