@@ -2651,6 +2651,7 @@ var testedElsewhere = map[string]struct{ file, name string }{
 	"O8":  {"outdir_test.go", "TestInterruptMessages"},
 	"Q11": {"../../runner/queue/hostile_test.go", "TestJobDeadlineNamesThePart"},
 	"Q13": {"../../runner/queue/faults_test.go", "TestWorkerFaultStopsRunOrIsRetried"},
+	"Q14": {"../../runner/queue/reconnect_test.go", "TestConnectionLostAndFoundIsLogged"},
 }
 
 // Every item of the catalogue is in docs/bad-inputs.md, and every item

@@ -41,7 +41,7 @@ func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, std
 	if err := a.PartsRank(whole); err != nil {
 		return fail(stderr, err)
 	}
-	ctx, c, done, err := connectQueue(cfg, *qf.deadline)
+	ctx, c, done, err := connectQueue(cfg, *qf.deadline, stderr)
 	if err != nil {
 		return fail(stderr, err)
 	}

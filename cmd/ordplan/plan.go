@@ -147,7 +147,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 			fmt.Fprintln(stderr, stabilityLocalNote(p))
 		}
 	}
-	res, err := runPlan(p, opt, qcfg, *qf.deadline, queueLog)
+	res, err := runPlan(p, opt, qcfg, *qf.deadline, queueLog, stderr)
 	if err != nil {
 		return fail(stderr, err)
 	}

@@ -96,7 +96,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		opt.Progress = olock.progress(stderr)
 	}
 	if qcfg != nil {
-		ctx, c, done, err := connectQueue(*qcfg, *qf.deadline)
+		ctx, c, done, err := connectQueue(*qcfg, *qf.deadline, stderr)
 		if err != nil {
 			return fail(stderr, err)
 		}

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"flag"
 	"fmt"
+	"io"
 	"os"
 	"os/signal"
 	"time"
@@ -69,8 +70,9 @@ func usageOrFail(cmd string, err error, stderr interface{ Write([]byte) (int, er
 // interrupt or a termination signal; deadline (0: the default) is how long
 // a coordinator waits for results. done closes the connection and stops
 // catching the signals.
-func connectQueue(cfg queue.Config, deadline time.Duration) (ctx context.Context, c *queue.Client, done func(), err error) {
+func connectQueue(cfg queue.Config, deadline time.Duration, log io.Writer) (ctx context.Context, c *queue.Client, done func(), err error) {
 	ctx, stop := signal.NotifyContext(context.Background(), stopSignals()...)
+	cfg.Log = log
 	c, err = queue.Connect(ctx, cfg)
 	if err != nil {
 		stop()

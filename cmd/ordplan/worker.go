@@ -77,7 +77,7 @@ func runWorker(args []string, stdout, stderr io.Writer, hold time.Duration, hold
 	if err := queue.CacheUsable(*cache); err != nil {
 		return fail(stderr, err)
 	}
-	ctx, c, done, err := connectQueue(cfg, 0)
+	ctx, c, done, err := connectQueue(cfg, 0, stderr)
 	if err != nil {
 		return fail(stderr, err)
 	}
@@ -94,12 +94,14 @@ func runWorker(args []string, stdout, stderr io.Writer, hold time.Duration, hold
 }
 
 // runPlan runs the plan here, or, with a queue URL, sends its fits to the
-// workers of that queue; the results are the same.
-func runPlan(p *plan.Plan, opt runner.Options, cfg *queue.Config, deadline time.Duration, log io.Writer) (*runner.Result, error) {
+// workers of that queue; the results are the same. log hears of the
+// queue's work (nil: --quiet), stderr of the connection lost and made
+// again, which --quiet does not silence.
+func runPlan(p *plan.Plan, opt runner.Options, cfg *queue.Config, deadline time.Duration, log, stderr io.Writer) (*runner.Result, error) {
 	if cfg == nil {
 		return runner.Run(p, opt)
 	}
-	ctx, c, done, err := connectQueue(*cfg, deadline)
+	ctx, c, done, err := connectQueue(*cfg, deadline, stderr)
 	if err != nil {
 		return nil, err
 	}

@@ -42,6 +42,7 @@ func Connect(ctx context.Context, cfg Config) (*Client, error) {
 	}
 	opts := []nats.Option{nats.Name(cfg.Name), nats.Timeout(5 * time.Second),
 		nats.MaxReconnects(-1), nats.ReconnectWait(500 * time.Millisecond)}
+	opts = append(opts, connectionLog(cfg.Log, shown, cfg.URL)...)
 	if cfg.CAFile != "" {
 		opts = append(opts, nats.RootCAs(cfg.CAFile))
 	}
@@ -72,6 +73,39 @@ func Connect(ctx context.Context, cfg Config) (*Client, error) {
 	}
 	c.ownConn = true
 	return c, nil
+}
+
+// connectionLog are the options that tell log (nil: nobody) of the
+// connection to the server shown lost and made again, and of the errors
+// the server reports on a subscription, in the program's words and
+// without a password of url; a connection closed by the program itself
+// is not reported.
+func connectionLog(log io.Writer, shown, url string) []nats.Option {
+	if log == nil {
+		return nil
+	}
+	return []nats.Option{
+		nats.DisconnectErrHandler(func(nc *nats.Conn, err error) {
+			if nc.IsClosed() {
+				return
+			}
+			why := "the server closed it"
+			if err != nil {
+				why = scrub(err.Error(), url)
+			}
+			fmt.Fprintf(log, "queue: lost the connection to the server %s (%s); trying again every 0.5s until it answers, waiting meanwhile (an interrupt stops the command)\n", shown, why)
+		}),
+		nats.ReconnectHandler(func(*nats.Conn) {
+			fmt.Fprintf(log, "queue: connected to the server %s again\n", shown)
+		}),
+		nats.ErrorHandler(func(_ *nats.Conn, sub *nats.Subscription, err error) {
+			on := ""
+			if sub != nil {
+				on = " (subscription " + sub.Subject + ")"
+			}
+			fmt.Fprintf(log, "queue: the server %s reported an error: %s%s\n", shown, scrub(err.Error(), url), on)
+		}),
+	}
 }
 
 // NewClient opens the shared resources over an existing connection, which

@@ -3,6 +3,7 @@ package queue
 import (
 	"errors"
 	"fmt"
+	"io"
 	"net/url"
 	"os"
 	"strings"
@@ -23,6 +24,12 @@ type Config struct {
 	// and replies carry an HMAC-SHA256 made with it, and anything without
 	// a valid one is discarded. See LoadSecret.
 	Secret []byte
+	// Log, when set, hears of the connection to the server lost and made
+	// again (the client reconnects without end, so that a restarted
+	// server does not end a run) and of errors the server reports on a
+	// subscription; without it a lost server left a run waiting in
+	// silence until its job deadline.
+	Log io.Writer
 }
 
 // Environment variables that give Config's fields when the flags do not.

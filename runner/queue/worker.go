@@ -74,7 +74,7 @@ func (w *Worker) Run(ctx context.Context) error {
 	wg.Wait()
 	// Run ends when ctx does (the command's interrupt): say so, so that the
 	// log of a stopped worker does not end as if it were waiting for jobs.
-	w.logf("worker %s: stopped; the jobs it had started were finished and their replies stored first", w.Name)
+	w.logf("worker %s: stopped; it finished the jobs it had started first (a reply it could not store is logged above, and its job goes to another worker)", w.Name)
 	return nil
 }
 
