@@ -196,8 +196,9 @@ func FewClustersWarnings(res *Result) []string {
 // pointWarnings are the notes of the data read for outcome on columns
 // whose points may separate thousands (data.Dataset.PointNotes), and on
 // an outcome code that looks like a code for a missing answer
-// (data.Dataset.StrayCode), which check and run print on the terminal as
-// warnings (the report has them).
+// (data.Dataset.StrayCode), and on predictor columns observed in fewer
+// than half of the rows (data.Dataset.MostlyMissing), which check and run
+// print on the terminal as warnings (the report has them).
 func pointWarnings(outcome string, ds *data.Dataset) []string {
 	if ds == nil {
 		return nil
@@ -208,6 +209,9 @@ func pointWarnings(outcome string, ds *data.Dataset) []string {
 	}
 	if ds.StrayCode != "" {
 		out = append(out, fmt.Sprintf("outcome %s: %s", outcome, ds.StrayCode))
+	}
+	for _, n := range ds.MostlyMissing {
+		out = append(out, fmt.Sprintf("outcome %s: %s", outcome, n))
 	}
 	return out
 }

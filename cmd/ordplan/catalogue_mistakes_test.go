@@ -415,6 +415,54 @@ func mistakeItems(dir string) []badInput {
 					t.Errorf("fit --categories 1,2,3,4: exit %d, want %q in\n%s", code, want, e)
 				}
 			}},
+		{id: "W34", name: "a predictor column observed in fewer than half of the rows (complete cases and data.missing: impute)", args: []string{"check"}, code: 0,
+			plan: edit("  file: d.csv\n", "  file: W34.csv\n", "predictors: [a, b]\n", "predictors: [a, b, s]\n"),
+			setup: func(t *testing.T, dir, id string) {
+				// s is observed in 40 of the 120 rows (every third).
+				withColumns(t, dir, id+".csv", "s", func(i int, f []string) string {
+					if i%3 == 0 {
+						return fmt.Sprint((i * 5) % 7)
+					}
+					return ""
+				})
+			},
+			check: func(t *testing.T, dir, out, errs string) {
+				plan := filepath.Join(dir, "W34.yaml")
+				want := "warning: " + plan + `: outcome y: Predictor column "s" is observed in 40 of the 120 rows (80 missing, 66.7%), fewer than half: every row missing it is dropped (complete cases), 80 rows for it alone, and at most 40 rows remain for the fits. Check the column (the one meant, its missing-value markers); if it is this sparse, leave it out of the predictors, or analyse the rows that have it (subset)` + "\n"
+				if !strings.Contains(errs, want) {
+					t.Errorf("check: want %q in\n%s", want, errs)
+				}
+				o := filepath.Join(dir, "W34-out")
+				_, e, code := runCLI("run", plan, "--out", o, "--quiet")
+				if code != 0 || !strings.Contains(e, want) {
+					t.Errorf("run: exit %d, want %q in\n%s", code, want, e)
+				}
+				note := `Predictor column \"s\" is observed in 40 of the 120 rows (80 missing, 66.7%), fewer than half: every row missing it is dropped`
+				if b, err := os.ReadFile(filepath.Join(o, "decisions.json")); err != nil || !strings.Contains(string(b), note) {
+					t.Errorf("decisions.json: want %q among the notes (%v)", note, err)
+				}
+				if b, err := os.ReadFile(filepath.Join(o, "report.md")); err != nil || !strings.Contains(string(b), `Predictor column "s" is observed in 40 of the 120 rows`) {
+					t.Errorf("report.md: no note on column s (%v)", err)
+				}
+				// Imputed, the warning says what the imputed values rest on.
+				imp := filepath.Join(dir, "W34imp.yaml")
+				b, err := os.ReadFile(plan)
+				if err != nil {
+					t.Fatal(err)
+				}
+				if err := os.WriteFile(imp, []byte(strings.Replace(string(b), "  file: W34.csv\n", "  file: W34.csv\n  missing: impute\n", 1)), 0o644); err != nil {
+					t.Fatal(err)
+				}
+				_, e, code = runCLI("check", imp)
+				want = "warning: " + imp + `: outcome y: Predictor column "s" is observed in 40 of the 120 rows (80 missing, 66.7%), fewer than half: more of its values are imputed than observed, and the 80 imputed rest on those 40 observed and on the imputation models: the fewer observed, the more its estimated effects restate those models rather than the data. Check the column (the one meant, its missing-value markers); if it is this sparse, leave it out of the predictors, or analyse the rows that have it (subset)` + "\n"
+				if code != 0 || !strings.Contains(e, want) {
+					t.Errorf("check (impute): exit %d, want %q in\n%s", code, want, e)
+				}
+				// a and b, observed in every row, are not named.
+				if strings.Contains(errs+e, `Predictor column "a"`) || strings.Contains(errs+e, `Predictor column "b"`) {
+					t.Errorf("a complete column is warned of:\n%s%s", errs, e)
+				}
+			}},
 		{id: "W32", name: "reject_if_sparse counting categories within the values of a numeric column of many values", args: []string{"check"}, code: 0,
 			plan: edit("  - reject_unconverged: true\n", "  - reject_unconverged: true\n  - reject_if_sparse: {smallest_category: 5, within: a}\n"),
 			check: func(t *testing.T, dir, out, errs string) {

@@ -88,6 +88,10 @@ type Dataset struct {
 	// others as a code for a missing answer does (strayCode; in Notes
 	// too, through CodeGapNote): check and run warn of it.
 	StrayCode string
+	// MostlyMissing are the notes (in Notes too) on predictor columns
+	// observed in fewer than half of the rows (mostlyMissing): check and
+	// run warn of them.
+	MostlyMissing []string
 	// Sheet names the worksheet of a workbook the rows come from, and
 	// what of it is hidden; nil for other files and for parts (each
 	// workbook part's is in Parts).

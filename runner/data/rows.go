@@ -154,6 +154,10 @@ func (r *reader) finish(t *rowTally, d *Dataset) (*Dataset, error) {
 		return nil, err
 	}
 	d.Missing.byCategory(r.cols, d, t.catMiss, t.catIncomplete)
+	if !opt.Part {
+		d.MostlyMissing = mostlyMissing(r.cols, d.Missing, opt.KeepIncomplete)
+		d.Notes = append(d.Notes, d.MostlyMissing...)
+	}
 	return d, nil
 }
 
