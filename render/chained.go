@@ -26,8 +26,12 @@ var modelWords = map[chained.Method]string{
 // the notes of the fits, the convergence summary when asked, and what
 // imputation assumes.
 func writeChained(d *doc, ch *runner.ChainedRecord, rows int, dz *design.Design, setsFile, cluster string) {
-	d.p("The imputed sets were made by this run by chained equations (fully conditional specification; van Buuren 2018): %d sets, each after %d iterations through the incomplete columns, with seed %d (set s draws from its own stream, so the sets do not depend on the number of workers). Of the %d rows, %d (%s) had a missing value in the outcome or a predictor column and were imputed rather than dropped. Each incomplete column was imputed from a model of it given the outcome and every other column used, as main effects of the raw columns; its parameters were drawn from their approximate posterior for every imputation, so that the sets reflect the uncertainty of the imputation model. Columns were visited in the order %s (fewest missing values first).",
-		ch.Sets, ch.Iterations, ch.Seed, rows, ch.RowsIncomplete, sharePct(ch.RowsIncomplete, rows), codeList(ch.Visits))
+	incomplete, kept, units := chainedRows(ch, rows)
+	if units != "" {
+		units = " (" + units + ")"
+	}
+	d.p("The imputed sets were made by this run by chained equations (fully conditional specification; van Buuren 2018): %d sets, each after %d iterations through the incomplete columns, with seed %d (set s draws from its own stream, so the sets do not depend on the number of workers). Of the %d rows, %d (%s) had a missing value in the outcome or a predictor column and were imputed rather than dropped%s. Each incomplete column was imputed from a model of it given the outcome and every other column used, as main effects of the raw columns; its parameters were drawn from their approximate posterior for every imputation, so that the sets reflect the uncertainty of the imputation model. Columns were visited in the order %s (fewest missing values first).",
+		ch.Sets, ch.Iterations, ch.Seed, kept, incomplete, sharePct(incomplete, kept), units, codeList(ch.Visits))
 	var tab [][]string
 	for _, m := range ch.Models {
 		w := modelWords[m.Method]
@@ -74,6 +78,17 @@ func writeChained(d *doc, ch *runner.ChainedRecord, rows int, dz *design.Design,
 		d.p("The completed sets are not among the outputs; `data.imputation.write_sets: true` writes them, for checking the imputations or analysing the sets elsewhere.")
 	}
 	d.p("Multiple imputation assumes that the values are missing at random given the columns in the imputation models: whether a value is missing may depend on the outcome and the other columns observed, not on the missing value itself. That assumption cannot be checked from the data; if missingness depends on the unseen values (missing not at random), the pooled estimates can be biased, and a sensitivity analysis is needed.%s", clusterCaution(cluster))
+}
+
+// chainedRows gives the rows kept with a missing value and imputed, the
+// rows kept, and under frequency weights the units these count in words
+// ("" without): units is the rows of the imputed sets (ImputedRun.Rows),
+// which are units under frequency weights (each imputed on its own).
+func chainedRows(ch *runner.ChainedRecord, units int) (incomplete, rows int, unitWords string) {
+	if ch.UnitsIncomplete == nil {
+		return ch.RowsIncomplete, units, ""
+	}
+	return ch.RowsIncomplete, ch.Rows, fmt.Sprintf("%d of the %d units the frequency weights count, each imputed on its own", *ch.UnitsIncomplete, units)
 }
 
 // clusterCaution says, when the plan has a cluster column, that the
@@ -127,7 +142,7 @@ func imputationMethods(im *runner.ImputedRun, mt *data.MissingTable, dz *design.
 			fallback = fmt.Sprintf(" Imputation models with perfect prediction were refitted with weighted pseudo-observations %s.", c.cite("augment"))
 		}
 	}
-	kept, used := ch.RowsIncomplete, im.Rows
+	kept, used, units := chainedRows(ch, im.Rows)
 	var about []string
 	if mt != nil {
 		imputed := map[string]bool{}
@@ -136,9 +151,8 @@ func imputationMethods(im *runner.ImputedRun, mt *data.MissingTable, dz *design.
 		}
 		var by string
 		kept, used, by = keptMissing(mt, imputed)
-		if used != im.Rows {
-			// Frequency weights: the sets hold the units the weights count.
-			about = append(about, fmt.Sprintf("%d of the %d units the frequency weights count, each imputed on its own", ch.RowsIncomplete, im.Rows))
+		if units != "" {
+			about = append(about, units)
 		}
 		if by != "" {
 			about = append(about, "missing by column: "+by)

@@ -278,10 +278,18 @@ tests: {parallel_lines: []}
 rules:
   - choose: {by: bic}
 `
-	md := string(renderSource(t, dir, src, 2)["report.md"])
+	files := renderSource(t, dir, src, 2)
+	md := string(files["report.md"])
 	want := fmt.Sprintf("The %d rows (%s of %d) with a missing value in the outcome or a predictor were kept (%d of the %d units the frequency weights count, each imputed on its own; missing by column: `x2` %d (%s)), and",
 		kept, sharePct(kept, used), used, unitsKept, units, keptX2, sharePct(keptX2, used))
-	hasAll(t, "report.md", md, want)
+	// The section on imputation and the records count rows as the
+	// Methods draft does, the units apart: rows_incomplete counted the
+	// units, and the section called them rows.
+	section := fmt.Sprintf("Of the %d rows, %d (%s) had a missing value in the outcome or a predictor column and were imputed rather than dropped (%d of the %d units the frequency weights count, each imputed on its own).",
+		used, kept, sharePct(kept, used), unitsKept, units)
+	hasAll(t, "report.md", md, want, section)
+	record := fmt.Sprintf("\"rows_incomplete\": %d,\n          \"units_incomplete\": %d,", kept, unitsKept)
+	hasAll(t, "decisions.json", string(files["decisions.json"]), record)
 	if regexp.MustCompile("missing by column: [^)]*`w`").MatchString(md) {
 		t.Error("the Methods draft lists the weights among the imputed columns")
 	}

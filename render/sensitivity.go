@@ -288,8 +288,12 @@ func sensitivityRows(sr *runner.SensitivityResult, sor *runner.OutcomeResult) st
 				}
 				models = append(models, fmt.Sprintf("%s (%d values) by %s given %s", mdCode(m.Column), m.Missing, w, strings.Join(m.Predictors, ", ")))
 			}
-			s += fmt.Sprintf(" Of these, %d (%s) had a missing value in the outcome or a predictor and were kept: their values were imputed by chained equations, %d sets, each after %d iterations, seed %d; %s. The fits of the %d sets were pooled by Rubin's rules, intervals on t with Barnard-Rubin degrees of freedom. This assumes that values are missing at random given the columns of the imputation models.",
-				ch.RowsIncomplete, sharePct(ch.RowsIncomplete, im.Rows), ch.Sets, ch.Iterations, ch.Seed, strings.Join(models, "; "), im.M)
+			incomplete, rows, units := chainedRows(ch, im.Rows)
+			if units != "" {
+				units = " (" + units + ")"
+			}
+			s += fmt.Sprintf(" Of these, %d (%s) had a missing value in the outcome or a predictor and were kept%s: their values were imputed by chained equations, %d sets, each after %d iterations, seed %d; %s. The fits of the %d sets were pooled by Rubin's rules, intervals on t with Barnard-Rubin degrees of freedom. This assumes that values are missing at random given the columns of the imputation models.",
+				incomplete, sharePct(incomplete, rows), units, ch.Sets, ch.Iterations, ch.Seed, strings.Join(models, "; "), im.M)
 		} else {
 			s += fmt.Sprintf(" Analysed on the %d imputed sets of the data, pooled by Rubin's rules.", im.M)
 		}
@@ -430,7 +434,11 @@ func sensitivityMethodsHow(r *runner.Result) []string {
 					}
 					models = append(models, fmt.Sprintf("%s for %s", w, mdCode(m.Column)))
 				}
-				parts = append(parts, fmt.Sprintf("the %d rows (%s of %d) with a missing value were multiply imputed by chained equations (%d sets, %d iterations each; %s; every model given the outcome and the other columns used) and the fits pooled by Rubin's rules", ch.RowsIncomplete, sharePct(ch.RowsIncomplete, im.Rows), im.Rows, ch.Sets, ch.Iterations, strings.Join(models, ", ")))
+				incomplete, rows, units := chainedRows(ch, im.Rows)
+				if units != "" {
+					units = "; " + units
+				}
+				parts = append(parts, fmt.Sprintf("the %d rows (%s of %d%s) with a missing value were multiply imputed by chained equations (%d sets, %d iterations each; %s; every model given the outcome and the other columns used) and the fits pooled by Rubin's rules", incomplete, sharePct(incomplete, rows), rows, units, ch.Sets, ch.Iterations, strings.Join(models, ", ")))
 			}
 			if ce, ok := analysisClusters(sr, sor); ok {
 				kind := "cluster-robust"

@@ -26,13 +26,21 @@ type ChainedRecord struct {
 	Seed       uint64 `json:"seed"`
 	// Stream is the outcome's index: set s draws from the stream
 	// Stream<<32 xor s of the seed.
-	Stream         uint64               `json:"stream"`
-	Donors         int                  `json:"donors"`
-	RowsIncomplete int                  `json:"rows_incomplete"`
-	Visits         []string             `json:"visits"`
-	Models         []chained.Model      `json:"models"`
-	Trace          []chained.TracePoint `json:"trace"`
-	Notes          []string             `json:"notes,omitempty"`
+	Stream uint64 `json:"stream"`
+	Donors int    `json:"donors"`
+	// RowsIncomplete counts the rows kept with a missing value (as the
+	// report counts rows), under frequency weights too.
+	RowsIncomplete int `json:"rows_incomplete"`
+	// UnitsIncomplete, under frequency weights only, counts the units
+	// those rows stand for, each imputed on its own (expandCounts).
+	UnitsIncomplete *int `json:"units_incomplete,omitempty"`
+	// Rows counts the rows kept, complete and incomplete (the rows, not
+	// the units of frequency weights that ImputedRun.Rows counts).
+	Rows   int                  `json:"-"`
+	Visits []string             `json:"visits"`
+	Models []chained.Model      `json:"models"`
+	Trace  []chained.TracePoint `json:"trace"`
+	Notes  []string             `json:"notes,omitempty"`
 	// Unheld says how many imputed values of a numeric column lie outside
 	// what the data dictionary declares or below 0 where no observed value
 	// is (chained.Result.Unheld).
@@ -100,11 +108,14 @@ func imputeChained(a *Analysis, r Reading, ds *data.Dataset, seed uint64, frozen
 	var err error
 	var notes []string
 	observed := ds
+	var units *int
 	if ds.Weights != nil {
 		rows := ds.N
 		if ds, err = expandCounts(ds); err != nil {
 			return nil, nil, nil, fmt.Errorf("%s: data.weights: %v (data.missing: impute, outcome %q)", a.Source, err, r.Outcome)
 		}
+		n := ds.Incomplete
+		units = &n
 		notes = append(notes, fmt.Sprintf("The frequency weights count identical units: for imputation each of the %d rows was expanded into as many rows as its weight, %d rows in all, and every unit was imputed on its own; the imputed sets and their row counts are those of the expanded rows", rows, ds.N))
 	}
 	im := a.Imputation
@@ -142,7 +153,7 @@ func imputeChained(a *Analysis, r Reading, ds *data.Dataset, seed uint64, frozen
 	}
 	run := &ImputedRun{M: im.Sets, Source: "chained", Files: []string{a.DataFile}, Rows: ds.N, Sets: fds, Data: sets, observed: observed,
 		Chained: &ChainedRecord{Outcome: r.Outcome, Method: "chained equations", Sets: im.Sets, Iterations: im.Iterations, Seed: seed,
-			Stream: stream, Donors: chainedDonors, RowsIncomplete: ds.Incomplete, Visits: res.Visits, Models: res.Models, Trace: res.Trace,
+			Stream: stream, Donors: chainedDonors, RowsIncomplete: observed.Incomplete, UnitsIncomplete: units, Rows: observed.N, Visits: res.Visits, Models: res.Models, Trace: res.Trace,
 			Notes: append(notes, res.Notes...), Unheld: res.Unheld, Unlinked: unlinked, ConvergenceTable: im.ConvergenceTable}}
 	if im.WriteSets && frozen == nil {
 		run.completed = func() ([]byte, error) { return completedCSV(sets, r) }
