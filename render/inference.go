@@ -251,11 +251,19 @@ func ImputedSetsFile(outcome string) string {
 	return outcomeFile("imputed-sets", outcome)
 }
 
-// outcomeFile names an outcome's file PREFIX-OUTCOME.csv: characters
-// other than letters, digits, '-' and '_' become '_', and a name so
-// changed gets 8 hex digits of the outcome's SHA-256, so that outcomes
-// differing only there get distinct files.
+// outcomeFile names an outcome's file PREFIX-OUTCOME.csv, OUTCOME its
+// outcomePart.
 func outcomeFile(prefix, col string) string {
+	return prefix + "-" + outcomePart(col) + ".csv"
+}
+
+// outcomePart is the part of a file name that names an outcome: the
+// column's name with characters other than letters, digits, '-' and '_'
+// made '_', and a name so changed followed by 8 hex digits of its SHA-256,
+// so that outcomes differing only there ("safety.2" and "safety_2",
+// "satisfaction é" and "satisfaction è") get distinct files. Every file
+// named after an outcome (tables, predictions, imputed sets) takes it.
+func outcomePart(col string) string {
 	name := []rune(col)
 	changed := false
 	for i, c := range name {
@@ -266,9 +274,9 @@ func outcomeFile(prefix, col string) string {
 	}
 	if changed {
 		h := sha256.Sum256([]byte(col))
-		return prefix + "-" + string(name) + "-" + hex.EncodeToString(h[:4]) + ".csv"
+		return string(name) + "-" + hex.EncodeToString(h[:4])
 	}
-	return prefix + "-" + string(name) + ".csv"
+	return string(name)
 }
 
 // predictionsCSV writes the predictions for new rows: the row's line in

@@ -51,6 +51,13 @@ func Outputs(r *runner.Result, dec *runner.Decisions, changes []string) (map[str
 	}
 	for _, or := range r.Outcomes {
 		for _, f := range tableFiles(r, or) {
+			// Names that differ in letter case alone are one file where
+			// the file system ignores case (macOS, Windows).
+			key := strings.ToLower(f.name)
+			if prev, dup := owner[key]; dup && prev != or.Outcome.Column {
+				return nil, fmt.Errorf("outcomes %q and %q would write the same table file %s (their names differ only in letter case): rename one of the outcome columns", prev, or.Outcome.Column, f.name)
+			}
+			owner[key] = or.Outcome.Column
 			files[f.name] = markedCSV(r, f.data)
 		}
 		if or.NewRows != nil && or.NewRows.Pred != nil {

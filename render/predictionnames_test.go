@@ -35,3 +35,24 @@ func TestPredictionColumnsNamedAsWritten(t *testing.T) {
 		t.Error("report.md still names the columns prob_CATEGORY")
 	}
 }
+
+// Every file named after an outcome takes one part for it: names that a
+// file name cannot hold as they are ("satisfaction é" and "satisfaction
+// è", "safety.2" and "safety_2") get distinct parts, so the tables of one
+// outcome no longer overwrite another's.
+func TestOutcomePartsDistinct(t *testing.T) {
+	seen := map[string]string{}
+	for _, col := range []string{"satisfaction é", "satisfaction è", "safety.2", "safety_2", "y"} {
+		p := outcomePart(col)
+		if other, dup := seen[p]; dup {
+			t.Errorf("%q and %q share the part %q", other, col, p)
+		}
+		seen[p] = col
+		if outcomeFile("predictions", col) != "predictions-"+p+".csv" {
+			t.Errorf("%q: predictions file %s, part %s", col, outcomeFile("predictions", col), p)
+		}
+	}
+	if p := outcomePart("safety_2"); p != "safety_2" {
+		t.Errorf("a name a file can hold is kept as it is: %s", p)
+	}
+}

@@ -98,20 +98,9 @@ func csvBytes(head []string, rows [][]string) []byte {
 	return b.Bytes()
 }
 
-// outcomeFileName is the part of a file name that names an outcome.
-func outcomeFileName(or *runner.OutcomeResult) string {
-	name := []rune(or.Outcome.Column)
-	for i, c := range name {
-		if !(c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' || c == '-' || c == '_') {
-			name[i] = '_'
-		}
-	}
-	return string(name)
-}
-
 // tableFiles returns the CSV tables of one outcome, in a fixed order.
 func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
-	o := outcomeFileName(or)
+	o := outcomePart(or.Outcome.Column)
 	level, _ := confidence(r)
 	var out []csvFile
 	add := func(kind, about string, head []string, rows [][]string) {

@@ -2352,7 +2352,19 @@ func catalogue(dir string) (items []badInput) {
 				if len(m) != 2 {
 					t.Errorf("predictions files: %v", m)
 				}
+				// Every table of each outcome too: they shared one name,
+				// and one outcome's tables were lost.
+				m, _ = filepath.Glob(filepath.Join(dir, "O3-out", "table-models-*.csv"))
+				if len(m) != 2 || !slices.Contains(m, filepath.Join(dir, "O3-out", "table-models-safety_2.csv")) {
+					t.Errorf("tables of the models: %v", m)
+				}
 			}},
+		{id: "O3", name: "outcomes whose names differ only in letter case", args: []string{"run"}, code: 1,
+			plan: edit("file: d.csv", "file: O3case.csv", "  - column: y\n", "  - column: y\n  - column: Y\n"),
+			setup: func(t *testing.T, dir, id string) {
+				withColumns(t, dir, "O3case.csv", "Y", func(_ int, f []string) string { return f[0] })
+			},
+			want: []string{`outcomes "y" and "Y" would write the same table file table-`, "(their names differ only in letter case): rename one of the outcome columns"}},
 		// The folder's run.json records report.md with other bytes: an
 		// output the user changed since the run wrote it.
 		withRecord(withUsersFile(badInput{id: "O4", name: "an output changed since the run wrote it", args: []string{"run"}, plan: goodPlan, code: 1,
