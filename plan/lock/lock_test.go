@@ -516,7 +516,7 @@ func TestReplacedLocksInStatus(t *testing.T) {
 	b, _ := os.ReadFile(kept)
 	os.WriteFile(kept, []byte(strings.Replace(string(b), "REG-7", "REG-9", 1)), 0o644)
 	st, _ = Check(p, false)
-	if len(st.Replaced) != 1 || !strings.Contains(st.Replaced[0].Error, "edited by hand") || !strings.Contains(st.ReplacedNote(st.Replaced[0]), "cannot be read") {
+	if len(st.Replaced) != 1 || !strings.HasPrefix(st.Replaced[0].Error, "the lock file was edited by hand") || !strings.HasPrefix(st.ReplacedNote(st.Replaced[0]), "p.lock.json.replaced-20261201T093000Z, a lock of this plan that ordplan freeze --replace kept, cannot be read: the lock file was edited by hand") {
 		t.Errorf("an edited kept lock: %+v", st.Replaced)
 	}
 }

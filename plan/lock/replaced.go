@@ -43,9 +43,10 @@ func replacedLocks(p *plan.Plan, path string) []Replaced {
 			continue
 		}
 		r := Replaced{File: e.Name(), Changed: []string{}}
-		f, err := Read(filepath.Join(filepath.Dir(path), e.Name()))
+		kept := filepath.Join(filepath.Dir(path), e.Name())
+		f, err := Read(kept)
 		if err != nil {
-			r.Error = err.Error()
+			r.Error = strings.TrimPrefix(err.Error(), kept+": ") // the note names the file
 			out = append(out, r)
 			continue
 		}
