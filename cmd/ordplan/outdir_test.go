@@ -258,6 +258,25 @@ func interruptSelf() {
 	time.Sleep(50 * time.Millisecond)
 }
 
+// interruptHeld sends the process an interrupt during l's write and waits
+// until l's watch holds it, however loaded the machine: a sleep alone may
+// end before the signal reaches the watch, which then sees the write
+// finished and says "after writing".
+func interruptHeld(t *testing.T, l *outputLock) {
+	t.Helper()
+	p, _ := os.FindProcess(os.Getpid())
+	p.Signal(os.Interrupt)
+	for deadline := time.Now().Add(10 * time.Second); time.Now().Before(deadline); time.Sleep(time.Millisecond) {
+		l.w.mu.Lock()
+		held := l.w.pending != nil
+		l.w.mu.Unlock()
+		if held {
+			return
+		}
+	}
+	t.Fatal("the interrupt sent during the write was not held")
+}
+
 // stoppedWith waits for the command to be stopped by an interrupt and
 // returns what it said on stderr.
 func stoppedWith(t *testing.T, stops <-chan os.Signal, stderr *bytes.Buffer) string {
@@ -318,7 +337,7 @@ func TestInterruptHeldDuringWrite(t *testing.T) {
 	afterTemp = func() {
 		if !sent {
 			sent = true
-			interruptSelf()
+			interruptHeld(t, l)
 		}
 	}
 	second := map[string][]byte{"report.md": []byte("second\n")}
@@ -411,7 +430,13 @@ func TestInterruptMessages(t *testing.T) {
 	// the command reported the failure.
 	stderr.Reset()
 	long := strings.Repeat("x", 300)
-	afterTemp = interruptSelf
+	sent := false
+	afterTemp = func() {
+		if !sent {
+			sent = true
+			interruptHeld(t, l)
+		}
+	}
 	if err := writeOutputs(l, dir, map[string][]byte{"report.md": []byte("new\n"), long: nil}, testRecord); err == nil {
 		t.Fatal("no error for a name too long")
 	}
