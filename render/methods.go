@@ -354,7 +354,13 @@ func subsetMethods(p *plan.Plan, ds *data.Dataset, imputed bool) string {
 		}
 		undecided += "."
 	}
-	why := " for missing values or zero weight"
+	var drops []data.DropCount
+	for _, dc := range ds.Dropped {
+		if !dc.Subset {
+			drops = append(drops, dc)
+		}
+	}
+	why := " for " + data.DropReasons(drops, p.Data.Weights)
 	if ds.RowsUndecided == 0 {
 		// Every row counted under a missing column met the conditions.
 		why = dropReasons(p, ds)

@@ -128,13 +128,15 @@ func imputedSets(a *Analysis, r Reading) (*ImputedRun, []*data.Dataset, *design.
 	}
 	for k, ds := range sets {
 		var miss []string
+		var drops []data.DropCount
 		for _, dc := range ds.Dropped {
 			if !dc.Subset {
 				miss = append(miss, fmt.Sprintf("%s: %d", dc.Column, dc.Rows))
+				drops = append(drops, dc)
 			}
 		}
 		if len(miss) > 0 {
-			return nil, nil, nil, fmt.Errorf("%s: data.imputed: imputed set %d, %s, has rows with missing values or zero weight (%s); every imputed set must be complete in the columns the plan uses", src, k+1, names[k], strings.Join(miss, ", "))
+			return nil, nil, nil, fmt.Errorf("%s: data.imputed: imputed set %d, %s, has rows with %s (%s); every imputed set must be complete in the columns the plan uses", src, k+1, names[k], data.DropReasons(drops, r.Options.Weights), strings.Join(miss, ", "))
 		}
 		if ds.N != sets[0].N {
 			if err := run.membership(nil); err != nil {

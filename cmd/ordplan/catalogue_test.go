@@ -1185,7 +1185,7 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`data.imputed.files: imp-cols.csv has the columns y, a, b, extra but d.csv has y, a, b, c, d, big, tiny; imputed sets must have the same columns`}},
 		{id: "I6", name: "an imputed set with missing values", args: []string{"run"}, setup: imputedFiles,
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp-miss.csv, column: imp}\n"), code: 1,
-			want: []string{`data.imputed: imputed set 2, imp-miss.csv (imp = 2), has rows with missing values or zero weight (a: 1); every imputed set must be complete in the columns the plan uses`}},
+			want: []string{`data.imputed: imputed set 2, imp-miss.csv (imp = 2), has rows with missing values (a: 1); every imputed set must be complete in the columns the plan uses`}},
 		{id: "I19", name: "imputed sets with fewer rows than the data file (made before rows were added)", args: []string{"run"}, setup: imputedFiles,
 			plan: edit("  file: d.csv\n", "  file: d.csv\n  imputed: {file: imp-fewer.csv, column: imp}\n"), code: 1,
 			want: []string{`data.imputed: imputed set 1, imp-fewer.csv (imp = 1), has 119 rows but the data file d.csv has 120 (each after the plan's subset); imputed sets hold the rows of the data they were made from: make them again from d.csv, or point data.file at the data they were made from`}},
@@ -2012,14 +2012,14 @@ func catalogue(dir string) (items []badInput) {
 
 		// Weights.
 		{id: "W1", name: "zero weights", args: fitArgs(d("w.csv"), "--predictors", "a,b", "--weights", "w0"), code: 0,
-			want: []string{"120 rows read, 119 used; 1 of 120 rows dropped for missing values or zero weight (w0 = 0: 1)", "Observations     119"}},
+			want: []string{"120 rows read, 119 used; 1 of 120 rows dropped for zero weight (w0 = 0: 1)", "Observations     119"}},
 		{id: "W2", name: "negative weight", args: fitArgs(d("w.csv"), "--predictors", "a,b", "--weights", "wneg"), code: 1,
 			want: []string{`w.csv:11: column "wneg": weight "-1" is negative (weights must be zero or more; a row of weight 0 is dropped)`}},
 		{id: "W3", name: "missing weight", args: fitArgs(d("w.csv"), "--predictors", "a,b", "--weights", "wmiss", "--json"), code: 0,
 			want: []string{`"nobs": 119`},
 			check: func(t *testing.T, dir, out, errs string) {
 				tab, _, _ := runCLI(fitArgs(filepath.Join(dir, "w.csv"), "--predictors", "a,b", "--weights", "wmiss")...)
-				if !strings.Contains(tab, "1 of 120 rows dropped for missing values or zero weight (wmiss: 1)") {
+				if !strings.Contains(tab, "1 of 120 rows dropped for missing values (wmiss: 1)") {
 					t.Errorf("the dropped row is not counted:\n%s", tab)
 				}
 			}},
@@ -2223,7 +2223,7 @@ func catalogue(dir string) (items []badInput) {
 			}},
 		{id: "W4", name: "every weight zero", args: []string{"run"},
 			plan: edit("file: d.csv", "file: allzero.csv\n  weights: w"), code: 1,
-			want: []string{`allzero.csv: all 3 data rows were dropped for missing values or zero weight (w = 0: 3)`}},
+			want: []string{`allzero.csv: all 3 data rows were dropped for zero weight (w = 0: 3)`}},
 		{id: "W30", name: "one weight that dwarfs the others together (1e15 among 119 weights of 1)", args: []string{"run"},
 			setup: func(t *testing.T, dir, id string) {
 				withColumns(t, dir, "dwarf.csv", "wd,w8", func(i int, _ []string) string {

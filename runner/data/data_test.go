@@ -301,8 +301,32 @@ func TestDatasetMethods(t *testing.T) {
 	if got := d.Row(1); !reflect.DeepEqual(got, []float64{3, 4}) || cap(got) != 2 {
 		t.Errorf("Row(1) = %v (cap %d)", got, cap(got))
 	}
-	if got, want := d.DropSummary(), "1 of 3 rows dropped for missing values or zero weight (a: 1)"; got != want {
+	// A weights column with no weight 0: the rows were dropped for
+	// missing values only (it said "missing values or zero weight").
+	if got, want := d.DropSummary(), "1 of 3 rows dropped for missing values (a: 1)"; got != want {
 		t.Errorf("DropSummary = %q, want %q", got, want)
+	}
+	// Each reason named only when some row was dropped for it.
+	for _, c := range []struct {
+		in, want string
+	}{
+		{"y,a,b,w\n1,1,2,5\n2,3,4,0\n2,1,2,1\n", "1 of 3 rows dropped for zero weight (w = 0: 1)"},
+		{"y,a,b,w\n1,1,2,5\n2,3,4,0\n2,,4,2\n2,1,2,1\n", "2 of 4 rows dropped for missing values or zero weight (a: 1, w = 0: 1; a row with several of these is counted once, under the first)"},
+	} {
+		d, err := Read(strings.NewReader(c.in), "m.csv", Options{Outcome: "y", Predictors: []string{"a", "b"}, Weights: "w"})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := d.DropSummary(); got != c.want {
+			t.Errorf("DropSummary = %q, want %q", got, c.want)
+		}
+	}
+	d, err = Read(strings.NewReader("y,a,b\n1,1,2\n2,,2\n1,3,0\n2,2,2\n"), "m.csv", Options{Outcome: "y", Predictors: []string{"a"}, Keep: []Condition{{Column: "b", Op: ">", Number: 1}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got, want := d.DropSummary(), "2 of 4 rows dropped for the subset or missing values"; !strings.HasPrefix(got, want) {
+		t.Errorf("DropSummary = %q, want it to begin %q", got, want)
 	}
 	d.Weights = nil
 	if got := d.NObs(); got != 2 {

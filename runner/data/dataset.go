@@ -2,7 +2,6 @@ package data
 
 import (
 	"fmt"
-	"slices"
 	"strings"
 )
 
@@ -162,21 +161,49 @@ func (d *Dataset) DropSummary() string {
 	if d.RowsDropped == 0 {
 		return "no rows dropped for missing values"
 	}
-	// Zero weight is named only where rows can have one: with a weights
-	// column, or where a count is of rows of weight 0 (ZeroWeight's
-	// "w = 0"); without weights the words would suggest rows no data have.
-	weighted := d.Weights != nil || slices.ContainsFunc(d.Dropped, func(dc DropCount) bool { return !dc.Subset && strings.HasSuffix(dc.Column, " = 0") })
-	why := "missing values"
-	switch {
-	case d.RowsOutside > 0 && weighted:
-		why = "the subset, missing values or zero weight"
-	case d.RowsOutside > 0:
-		why = "the subset or missing values"
-	case weighted:
-		why = "missing values or zero weight"
-	}
+	// The dataset does not know its weights column's name: a count of
+	// rows of weight 0 is the one named "W = 0" (ZeroWeight).
+	why := dropReasons(d.Dropped, func(dc DropCount) bool { return strings.HasSuffix(dc.Column, " = 0") })
 	return fmt.Sprintf("%d of %d rows dropped for %s (%s)%s",
 		d.RowsDropped, d.RowsRead, why, dropList(d.Dropped), d.UndecidedSummary())
+}
+
+// DropReasons says what the rows counted in dc were dropped for, naming
+// only the reasons some row was: "the subset", "missing values", "zero
+// weight", in that order ("missing values or zero weight"; "zero weight"
+// alone when every row dropped weighs 0). weights is the weights column
+// ("" for none).
+func DropReasons(dc []DropCount, weights string) string {
+	return dropReasons(dc, func(c DropCount) bool { return c.ZeroWeight(weights) })
+}
+
+func dropReasons(dc []DropCount, zeroWeight func(DropCount) bool) string {
+	var subset, missing, zero bool
+	for _, c := range dc {
+		switch {
+		case c.Rows == 0:
+		case c.Subset:
+			subset = true
+		case zeroWeight(c):
+			zero = true
+		default:
+			missing = true
+		}
+	}
+	var why []string
+	if subset {
+		why = append(why, "the subset")
+	}
+	if missing || !subset && !zero {
+		why = append(why, "missing values")
+	}
+	if zero {
+		why = append(why, "zero weight")
+	}
+	if len(why) == 1 {
+		return why[0]
+	}
+	return strings.Join(why[:len(why)-1], ", ") + " or " + why[len(why)-1]
 }
 
 // UndecidedSummary says, after a list of dropped rows, how many of them

@@ -84,7 +84,7 @@ func TestTrailingUnnamedColumns(t *testing.T) {
 // counted, and a file of nothing else says so.
 func TestAllRowsZeroWeight(t *testing.T) {
 	_, err := Read(strings.NewReader("y,w\n1,0\n2,0\n"), "t.csv", Options{Outcome: "y", Weights: "w"})
-	want := `t.csv: all 2 data rows were dropped for missing values or zero weight (w = 0: 2)`
+	want := `t.csv: all 2 data rows were dropped for zero weight (w = 0: 2)`
 	if err == nil || err.Error() != want {
 		t.Errorf("got %v, want %s", err, want)
 	}

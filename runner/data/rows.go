@@ -911,14 +911,7 @@ func (r *reader) noneKept(d *Dataset, subset bool) error {
 		}
 		return r.fail(0, first, "the subset keeps no rows: all %d data rows fail its conditions (%s)", d.RowsRead, dropList(d.Dropped))
 	}
-	why := "missing values"
-	if d.RowsOutside > 0 {
-		why = "missing values or the subset"
-	}
-	if opt.Weights != "" && slices.ContainsFunc(d.Dropped, func(dc DropCount) bool { return dc.ZeroWeight(opt.Weights) }) {
-		why = "missing values or zero weight"
-	}
-	return r.fail(0, "", "all %d data rows were dropped for %s (%s)", d.RowsRead, why, dropList(d.Dropped))
+	return r.fail(0, "", "all %d data rows were dropped for %s (%s)", d.RowsRead, DropReasons(d.Dropped, opt.Weights), dropList(d.Dropped))
 }
 
 // byCategory fills the missingness by outcome category: the kept rows of
