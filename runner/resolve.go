@@ -476,13 +476,32 @@ func (a *Analysis) checkPanels(r Reading, ds *data.Dataset, dz *design.Design) e
 }
 
 // Observed refuses data in which a declared category of the outcome has no
-// row: the one check and wording of an unobserved category.
+// row: the one check and wording of an unobserved category. Rows kept for
+// imputation (data.missing: impute) may miss the outcome: the category is
+// then said to be never observed among the rows whose outcome is
+// observed, those that miss it counted apart.
 func (a *Analysis) Observed(r Reading, ds *data.Dataset) error {
 	if len(ds.Unobserved) == 0 {
 		return nil
 	}
-	return fmt.Errorf("%s: %s: category %q is declared but never observed in the %d rows used; remove it from %s or merge it with a neighbour",
-		a.Source, r.Key, ds.Unobserved[0], ds.N, r.CategoriesKey)
+	rows := fmt.Sprintf("the %d rows used", ds.N)
+	if miss := ds.N - observedOutcomes(ds); miss > 0 {
+		rows = fmt.Sprintf("the %d rows used whose %s is observed (the other %d of the %d rows used miss it, to be imputed)", ds.N-miss, ds.Outcome, miss, ds.N)
+	}
+	return fmt.Errorf("%s: %s: category %q is declared but never observed in %s; remove it from %s or merge it with a neighbour",
+		a.Source, r.Key, ds.Unobserved[0], rows, r.CategoriesKey)
+}
+
+// observedOutcomes counts the rows of ds whose outcome is observed (a row
+// kept for imputation may miss it: Y < 0).
+func observedOutcomes(ds *data.Dataset) int {
+	n := 0
+	for _, y := range ds.Y {
+		if y >= 0 {
+			n++
+		}
+	}
+	return n
 }
 
 // Clusters refuses data with fewer than two clusters under clustered

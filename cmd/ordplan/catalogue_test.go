@@ -1350,7 +1350,29 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`onecat.csv: column "y": only one category ("2") among the 3 kept rows; at least two are needed`}},
 		{id: "D9", name: "declared category never observed", args: []string{"run"},
 			plan: edit("column: y", "column: y\n    categories: [\"1\", \"2\", \"3\", \"4\"]"), code: 1,
-			want: []string{`D9.yaml: outcomes: y: category "4" is declared but never observed in the 120 rows used; remove it from categories or merge it with a neighbour`}},
+			want: []string{`D9.yaml: outcomes: y: category "4" is declared but never observed in the 120 rows used; remove it from categories or merge it with a neighbour`},
+			check: func(t *testing.T, dir, out, errs string) {
+				// Under data.missing: impute the rows used include those
+				// missing the outcome: the category is never observed
+				// among the rows whose outcome is observed (it said "in
+				// the 120 rows used", 12 of them without an outcome).
+				src, err := os.ReadFile(filepath.Join(dir, "d.csv"))
+				if err != nil {
+					t.Fatal(err)
+				}
+				lines := strings.Split(strings.TrimSpace(string(src)), "\n")
+				for i := 1; i < len(lines); i += 10 {
+					lines[i] = lines[i][strings.Index(lines[i], ","):]
+				}
+				os.WriteFile(filepath.Join(dir, "D9imp.csv"), []byte(strings.Join(lines, "\n")+"\n"), 0o644)
+				plan := edit("column: y", "column: y\n    categories: [\"1\", \"2\", \"3\", \"4\"]", "  file: d.csv\n", "  file: D9imp.csv\n  missing: impute\n")
+				os.WriteFile(filepath.Join(dir, "D9imp.yaml"), []byte(plan), 0o644)
+				_, e, code := runCLI("check", filepath.Join(dir, "D9imp.yaml"))
+				want := `D9imp.yaml: outcomes: y: category "4" is declared but never observed in the 108 rows used whose y is observed (the other 12 of the 120 rows used miss it, to be imputed); remove it from categories or merge it with a neighbour`
+				if code != 1 || !strings.Contains(e, want) {
+					t.Errorf("check (impute): exit %d, want %q in\n%s", code, want, e)
+				}
+			}},
 		{id: "D10", name: "value that is not a declared category", args: fitArgs(d("labels.csv"), "--categories", "low,high", "--predictors", "a,b"), code: 1,
 			want: []string{`labels.csv:3: column "y": value "medium" is not one of the declared categories: "low", "high"`}},
 		{id: "D10", name: "value that is not a declared category, in a plan: the plan key named", args: []string{"check"},
