@@ -106,8 +106,8 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 	if stat == "t" {
 		fmt.Fprintf(w, "\n%s\n", tNote(r, "estimate"))
 	}
-	if n := r.NotEstimableNote(func(s string) string { return s }); n != "" {
-		fmt.Fprintf(w, "\nn/a: %s.\n", n)
+	if n := notEstimableLine(r); n != "" {
+		fmt.Fprintf(w, "\n%s\n", n)
 	}
 	fmt.Fprintf(w, "\nA positive slope moves the outcome towards higher categories. L_m = tau[m] - x'b_m.\n")
 	if r.Status == fit.StatusNegativeProbs {
@@ -120,6 +120,18 @@ func FitTable(w io.Writer, r *fit.Result, ds DataSummary, level float64) error {
 		fmt.Fprintf(w, "Warning: %s.\n", n)
 	}
 	return nil
+}
+
+// notEstimableLine is the line ordplan fit prints below its table of
+// estimates, and below its table of odds ratios when some interval there
+// is n/a, saying which standard errors are not estimable under clustered
+// errors and why ("" when every one is).
+func notEstimableLine(r *fit.Result) string {
+	n := r.NotEstimableNote(func(s string) string { return s })
+	if n == "" {
+		return ""
+	}
+	return "n/a: " + n + "."
 }
 
 func statusLine(r *fit.Result) string {
@@ -246,6 +258,14 @@ func oddsRatioText(w io.Writer, r *fit.Result, tab *runner.OddsRatiosRecord) err
 	if u := unshownOdds(tab.Rows); u != "" {
 		if _, err := fmt.Fprintln(w, u); err != nil {
 			return err
+		}
+	}
+	// Intervals shown as n/a: the reason the table of estimates gives.
+	if slices.ContainsFunc(tab.Rows, func(o runner.OddsRatioRow) bool { return math.IsNaN(o.Low) || math.IsNaN(o.High) }) {
+		if n := notEstimableLine(r); n != "" {
+			if _, err := fmt.Fprintln(w, n); err != nil {
+				return err
+			}
 		}
 	}
 	if len(tab.Omitted) > 0 {

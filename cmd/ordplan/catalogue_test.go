@@ -2174,7 +2174,23 @@ func catalogue(dir string) (items []badInput) {
 				withColumns(t, dir, "fe.csv", "site,sid", func(i int, _ []string) string { return fmt.Sprintf("s%d,s%d", i%6, i%6) })
 			},
 			args: fitArgs(d("fe.csv"), "--predictors", "a,site|levels=s0/s1/s2/s3/s4/s5", "--covariance", "clustered", "--cluster", "sid"),
-			want: []string{"\nn/a: the standard errors of tau[1], tau[2], site.s1, site.s2, site.s3, site.s4, site.s5 are not estimable under clustered errors: they depend on combinations of the model's columns whose rows all lie in one cluster (clusters \"s0\", \"s1\", \"s2\" and 3 more)", `also the rows of site = s1 (cluster "s1"), site = s2 (cluster "s2"), site = s3 (cluster "s3") and 2 more lie in one cluster each (a cluster's own fixed effect, or a level met in one cluster): the score of such a level's column sums to 0 over its rows at the maximum, so its sum in each cluster is 0 and the cluster-robust standard errors, tests and intervals of its effects have nothing to rest on: the outputs show them as not available (n/a), with the reason; read its estimates only, or give it errors that do not cluster by this column.`}},
+			want: []string{"\nn/a: the standard errors of tau[1], tau[2], site.s1, site.s2, site.s3, site.s4, site.s5 are not estimable under clustered errors: they depend on combinations of the model's columns whose rows all lie in one cluster (clusters \"s0\", \"s1\", \"s2\" and 3 more)", `also the rows of site = s1 (cluster "s1"), site = s2 (cluster "s2"), site = s3 (cluster "s3") and 2 more lie in one cluster each (a cluster's own fixed effect, or a level met in one cluster): the score of such a level's column sums to 0 over its rows at the maximum, so its sum in each cluster is 0 and the cluster-robust standard errors, tests and intervals of its effects have nothing to rest on: the outputs show them as not available (n/a), with the reason; read its estimates only, or give it errors that do not cluster by this column.`},
+			check: func(t *testing.T, dir, out, errs string) {
+				// The odds ratios' n/a intervals get the reason below
+				// their table, in the estimates' words (they were bare).
+				i := strings.Index(out, "odds ratios, exp(b)")
+				if i < 0 {
+					t.Fatalf("no table of odds ratios in\n%s", out)
+				}
+				tab := out[i:]
+				if end := strings.Index(tab, "\n\n"); end >= 0 {
+					tab = tab[:end]
+				}
+				want := "]\nn/a: the standard errors of tau[1], tau[2], site.s1, site.s2, site.s3, site.s4, site.s5 are not estimable under clustered errors: they depend on combinations of the model's columns whose rows all lie in one cluster"
+				if !strings.Contains(tab, "[n/a, n/a]") || !strings.Contains(tab, want) {
+					t.Errorf("the odds ratios' n/a intervals are not explained below their table:\n%s", tab)
+				}
+			}},
 		{id: "W29", name: "sites as fixed effects clustered by site under the few-cluster jackknife: the jackknife of the other parameters, the site effects and thresholds n/a", code: 0,
 			setup: func(t *testing.T, dir, id string) {
 				withColumns(t, dir, "fe.csv", "site,sid", func(i int, _ []string) string { return fmt.Sprintf("s%d,s%d", i%6, i%6) })
