@@ -428,7 +428,7 @@ func mistakeItems(dir string) []badInput {
 			},
 			check: func(t *testing.T, dir, out, errs string) {
 				plan := filepath.Join(dir, "W34.yaml")
-				want := "warning: " + plan + `: outcome y: Predictor column "s" is observed in 40 of the 120 rows (80 missing, 66.7%), fewer than half: every row missing it is dropped (complete cases), 80 rows for it alone, and at most 40 rows remain for the fits. Check the column (the one meant, its missing-value markers); if it is this sparse, leave it out of the predictors, or analyse the rows that have it (subset)` + "\n"
+				want := "warning: " + plan + `: outcome y: Predictor column "s" is observed in 40 of the 120 rows (80 missing, 66.7%), fewer than half: every row missing it, 80, is dropped (complete cases), so at most 40 rows remain for the fits. Check the column (the one meant, its missing-value markers); if it is this sparse, leave it out of the predictors, or analyse the rows that have it (subset)` + "\n"
 				if !strings.Contains(errs, want) {
 					t.Errorf("check: want %q in\n%s", want, errs)
 				}
@@ -437,7 +437,7 @@ func mistakeItems(dir string) []badInput {
 				if code != 0 || !strings.Contains(e, want) {
 					t.Errorf("run: exit %d, want %q in\n%s", code, want, e)
 				}
-				note := `Predictor column \"s\" is observed in 40 of the 120 rows (80 missing, 66.7%), fewer than half: every row missing it is dropped`
+				note := `Predictor column \"s\" is observed in 40 of the 120 rows (80 missing, 66.7%), fewer than half: every row missing it, 80, is dropped`
 				if b, err := os.ReadFile(filepath.Join(o, "decisions.json")); err != nil || !strings.Contains(string(b), note) {
 					t.Errorf("decisions.json: want %q among the notes (%v)", note, err)
 				}

@@ -28,7 +28,7 @@ func mostlyMissing(cols []usedCol, mt *MissingTable, keep bool) []string {
 			out = append(out, fmt.Sprintf("%s: more of its values are imputed than observed, and the %d imputed rest on those %d observed and on the imputation models: the fewer observed, the more its estimated effects restate those models rather than the data. Check the column (the one meant, its missing-value markers); if it is this sparse, leave it out of the predictors, or analyse the rows that have it (subset)", head, miss, seen))
 			continue
 		}
-		out = append(out, fmt.Sprintf("%s: every row missing it is dropped (complete cases), %d rows for it alone, and at most %d rows remain for the fits. Check the column (the one meant, its missing-value markers); if it is this sparse, leave it out of the predictors, or analyse the rows that have it (subset)", head, miss, seen))
+		out = append(out, fmt.Sprintf("%s: every row missing it, %d, is dropped (complete cases), so at most %d rows remain for the fits. Check the column (the one meant, its missing-value markers); if it is this sparse, leave it out of the predictors, or analyse the rows that have it (subset)", head, miss, seen))
 	}
 	return out
 }
