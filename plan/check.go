@@ -118,6 +118,42 @@ func known(names []string) string {
 	return "predictors: " + strings.Join(names, ", ")
 }
 
+// caseTwin finds an outcome among seen whose name differs from col only in
+// letter case while both are names an output file holds as they are
+// (ASCII letters, digits, '-' and '_'): such outcomes' files would be one
+// file where the file system ignores case. A name with other characters
+// is written with a hash of it in file names, so it has no twin.
+func caseTwin(seen map[string]int, col string) (string, bool) {
+	if !fileSafe(col) {
+		return "", false
+	}
+	twin, at := "", 0
+	for name, line := range seen {
+		if name != col && fileSafe(name) && strings.EqualFold(name, col) && (twin == "" || line < at) {
+			twin, at = name, line
+		}
+	}
+	return twin, twin != ""
+}
+
+// fileSafe tells whether a name goes into a file name as it is.
+func fileSafe(s string) bool {
+	for _, c := range s {
+		if !FileSafeRune(c) {
+			return false
+		}
+	}
+	return true
+}
+
+// FileSafeRune tells whether a character of an outcome's name goes into
+// the names of its output files as it is: ASCII letters, digits, '-' and
+// '_' (render's outcome file names; others become '_' there, with a hash
+// of the name).
+func FileSafeRune(c rune) bool {
+	return c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' || c == '-' || c == '_'
+}
+
 // checkColumns makes sure no column plays two parts.
 func (d *decoder) checkColumns(p *Plan) {
 	predOK := d.predictorsKnown(p)
@@ -129,6 +165,10 @@ func (d *decoder) checkColumns(p *Plan) {
 		}
 		if line, dup := outcomeAt[o.Column]; dup {
 			d.errAt(key, "outcome %s is listed twice (first at line %d)", quote(o.Column), line)
+			continue
+		}
+		if twin, ok := caseTwin(outcomeAt, o.Column); ok {
+			d.errAt(key, "outcomes %s and %s (line %d) differ only in letter case: their output files (table-models-%s.csv and table-models-%s.csv, predictions, imputed sets) would be one file where the file system ignores case (macOS, Windows); rename one of the outcome columns in the data and the plan", quote(twin), quote(o.Column), outcomeAt[twin], twin, o.Column)
 			continue
 		}
 		outcomeAt[o.Column] = d.line(key)

@@ -261,6 +261,8 @@ func TestBadPlans(t *testing.T) {
 			[]string{`bad.yaml:7:23: outcomes[0].categories[1]: category "NA" of column "y" is also a missing-value marker in data.missing_values: every cell "NA" is read as missing, never as this value; remove it from data.missing_values ([]), or recode the value in the data`}},
 		{"duplicate outcome", "  - column: y\n", "  - column: y\n  - column: y\n",
 			[]string{`bad.yaml:6:13: outcomes[1].column: outcome "y" is listed twice (first at line 5)`}},
+		{"outcomes differing in case", "  - column: y\n", "  - column: y\n  - column: Y\n",
+			[]string{`bad.yaml:6:13: outcomes[1].column: outcomes "y" and "Y" (line 5) differ only in letter case: their output files (table-models-y.csv and table-models-Y.csv, predictions, imputed sets) would be one file where the file system ignores case (macOS, Windows); rename one of the outcome columns in the data and the plan`}},
 		{"outcome without column", "  - column: y\n", "  - label: Y\n",
 			[]string{`bad.yaml:5:5: outcomes[0].column: required key is missing`}},
 		{"free not a predictor", "free: [a]", "free: [a, z]",
@@ -448,6 +450,16 @@ func TestBadPlans(t *testing.T) {
 				}
 			}
 		})
+	}
+}
+
+// Outcome names that differ in case but carry a character a file name
+// does not hold as it is ('.') are written with a hash of the name in
+// file names, so their files differ where case is ignored: no refusal.
+func TestOutcomesDifferingInCaseWithHashedNames(t *testing.T) {
+	src := "version: 1\ndata:\n  file: d.csv\noutcomes:\n  - column: y.1\n  - column: Y.1\npredictors: [a]\nmodels: {effects: [parallel]}\nrules:\n  - choose: {by: aic}\n"
+	if _, err := Parse([]byte(src), "ok.yaml"); err != nil {
+		t.Fatal(err)
 	}
 }
 

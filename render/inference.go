@@ -11,6 +11,7 @@ import (
 	"strings"
 
 	"ordplan/internal/words"
+	"ordplan/plan"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/data"
@@ -267,7 +268,7 @@ func outcomePart(col string) string {
 	name := []rune(col)
 	changed := false
 	for i, c := range name {
-		if !(c >= 'a' && c <= 'z' || c >= 'A' && c <= 'Z' || c >= '0' && c <= '9' || c == '-' || c == '_') {
+		if !plan.FileSafeRune(c) {
 			name[i] = '_'
 			changed = true
 		}

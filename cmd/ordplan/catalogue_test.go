@@ -2402,7 +2402,7 @@ func catalogue(dir string) (items []badInput) {
 			setup: func(t *testing.T, dir, id string) {
 				withColumns(t, dir, "O3case.csv", "Y", func(_ int, f []string) string { return f[0] })
 			},
-			want: []string{`outcomes "y" and "Y" would write the same table file table-`, "(their names differ only in letter case): rename one of the outcome columns"}},
+			want: []string{`outcomes[1].column: outcomes "y" and "Y" (line `, `) differ only in letter case: their output files (table-models-y.csv and table-models-Y.csv, predictions, imputed sets) would be one file where the file system ignores case (macOS, Windows); rename one of the outcome columns in the data and the plan`}},
 		// The folder's run.json records report.md with other bytes: an
 		// output the user changed since the run wrote it.
 		withRecord(withUsersFile(badInput{id: "O4", name: "an output changed since the run wrote it", args: []string{"run"}, plan: goodPlan, code: 1,
