@@ -75,10 +75,12 @@ func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	// A column whose term enters an interaction has its slopes where the
 	// terms it interacts with have their columns at 0, as its odds ratios.
 	where := map[string]string{}
+	shown := map[string]string{} // the title of a column's chart
 	for _, c := range or.ColumnReadings() {
 		if c.Where != "" {
 			where[c.Column] = c.Where
 		}
+		shown[c.Column] = levelShown(c)
 	}
 	if len(where) > 0 {
 		head = slices.Insert(head, 1, "Holds at")
@@ -104,7 +106,7 @@ func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			row = append(row, chosenCell(chosen, k))
 		}
 		rows = append(rows, row)
-		cs = append(cs, boundaryChart(d, pred, where[pred], res.Categories, est, se, boundaryQuantiles(res, k, level), level, par, chosen, ch.Effects.String(), k))
+		cs = append(cs, boundaryChart(d, pred, shown[pred], where[pred], res.Categories, est, se, boundaryQuantiles(res, k, level), level, par, chosen, ch.Effects.String(), k))
 	}
 	if len(rows) > 0 {
 		if len(where) > 0 {
@@ -190,8 +192,21 @@ func chosenCell(res *fit.Result, k int) string {
 	return strings.Join(parts, ", ")
 }
 
-// boundaryChart draws one predictor's slopes across the boundaries.
-func boundaryChart(d *doc, pred, holds string, cats []string, est, se, crit []float64, level float64, par *runner.FitEntry, chosen *fit.Result, chosenLevel string, k int) *chart {
+// levelShown names the column of reading c in a chart's title: a column
+// of a categorical term whose name does not spell its level (characters
+// a name cannot hold, such as accents and spaces, became "_") by its term
+// and level, "region = Île-de-France", since the name alone does not say
+// which level it is; any other column by its name.
+func levelShown(c runner.ColumnReading) string {
+	if c.Level == "" || c.Column == c.Term+"."+c.Level {
+		return c.Column
+	}
+	return c.Term + " = " + c.Level
+}
+
+// boundaryChart draws one predictor's slopes across the boundaries;
+// shown is the predictor's name in the titles (levelShown; "": pred).
+func boundaryChart(d *doc, pred, shown, holds string, cats []string, est, se, crit []float64, level float64, par *runner.FitEntry, chosen *fit.Result, chosenLevel string, k int) *chart {
 	q := len(cats) - 1
 	bounds := make([]string, q)
 	for m := range bounds {
@@ -227,7 +242,10 @@ func boundaryChart(d *doc, pred, holds string, cats []string, est, se, crit []fl
 	if holds != "" {
 		sub += ", holds at " + holds
 	}
-	fr := d.frame(chartFrame{title: pred, subtitle: sub, height: 340 + int(labels.extent-labels.upright(10)),
+	if shown == "" {
+		shown = pred
+	}
+	fr := d.frame(chartFrame{title: shown, subtitle: sub, height: 340 + int(labels.extent-labels.upright(10)),
 		grid: opts.Grid{Left: leftFor(labels, "4%"), Right: "6%", Top: "60", Bottom: "60"}, legend: legend})
 	l := charts.NewLine()
 	l.SetGlobalOptions(append(fr.opts(),
@@ -239,9 +257,13 @@ func boundaryChart(d *doc, pred, holds string, cats []string, est, se, crit []fl
 	// Both bounds carry the same name, so the legend shows one entry.
 	l.AddSeries(band, lineData(lo), lineStyle(colorEstimate, 1, true, false)...)
 	l.AddSeries(band, lineData(hi), lineStyle(colorEstimate, 1, true, false)...)
-	caption := fmt.Sprintf("%s: nonparallel slope at each boundary with its %s (dashed)", pred, band)
+	named := pred
+	if shown != pred {
+		named = fmt.Sprintf("%s (%s)", pred, shown)
+	}
+	caption := fmt.Sprintf("%s: nonparallel slope at each boundary with its %s (dashed)", named, band)
 	if holds != "" {
-		caption = fmt.Sprintf("%s at %s (where its slopes hold, since it enters an interaction): nonparallel slope at each boundary with its %s (dashed)", pred, holds, band)
+		caption = fmt.Sprintf("%s at %s (where its slopes hold, since it enters an interaction): nonparallel slope at each boundary with its %s (dashed)", named, holds, band)
 	}
 	if chosen != nil {
 		cv := make([]float64, q)
@@ -260,7 +282,7 @@ func boundaryChart(d *doc, pred, holds string, cats []string, est, se, crit []fl
 		l.AddSeries("parallel", lineData(flat), lineStyle(colorParallel, 2, false, false)...)
 		caption += ", and the parallel slope (flat line)"
 	}
-	title := pred + ": slope at each boundary"
+	title := shown + ": slope at each boundary"
 	if holds != "" {
 		title += " (at " + holds + ")"
 	}

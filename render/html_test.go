@@ -3,6 +3,8 @@ package render
 import (
 	"strings"
 	"testing"
+
+	"ordplan/runner"
 )
 
 // TestNameBreaks: long names in table cells may break after "_", ".",
@@ -101,5 +103,23 @@ func TestRateBoundCellsRightAligned(t *testing.T) {
 func TestHeadersMayWrap(t *testing.T) {
 	if strings.Contains(css, "th{background:#f2f2f2;white-space:nowrap}") || !strings.Contains(css, "th{background:#f2f2f2}") {
 		t.Errorf("header cells are kept on one line: %s", css)
+	}
+}
+
+// A chart of a level's column whose name lost the level's accents and
+// spaces is titled by the term and the level as declared.
+func TestLevelShownNamesUnspelledLevels(t *testing.T) {
+	for _, c := range []struct {
+		r    runner.ColumnReading
+		want string
+	}{
+		{runner.ColumnReading{Column: "street_type.through_road", Term: "street_type", Level: "through_road"}, "street_type.through_road"},
+		{runner.ColumnReading{Column: "region.R_gion_nord", Term: "region", Level: "Région nord"}, "region = Région nord"},
+		{runner.ColumnReading{Column: "age", Term: "age"}, "age"},
+		{runner.ColumnReading{Column: "a&b.x", Term: "a&b"}, "a&b.x"},
+	} {
+		if got := levelShown(c.r); got != c.want {
+			t.Errorf("levelShown(%+v) = %q, want %q", c.r, got, c.want)
+		}
 	}
 }

@@ -34,6 +34,9 @@ type ColumnReading struct {
 	Alone bool
 	// Term is the plan term (or --predictors item) the column belongs to.
 	Term string
+	// Level is the level a column of a categorical term stands for, as
+	// declared ("" for other columns): its name may not spell it (LevelName).
+	Level string
 	// named: the change reads without the term's name (a level, 1 against
 	// 0), so an interaction's reading puts the name before it.
 	named bool
@@ -118,7 +121,7 @@ func termReadings(dz *design.Design, raw *data.Dataset, k int, per [][]ColumnRea
 		for i, col := range t.Columns {
 			out[i] = ColumnReading{Column: col, Alone: true, named: true}
 			if i < len(levels) {
-				out[i].Change = levels[i] + " against " + against[i]
+				out[i].Change, out[i].Level = levels[i]+" against "+against[i], levels[i]
 			}
 		}
 		return out

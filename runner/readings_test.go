@@ -88,6 +88,9 @@ rules:
 			sites := []string{"north", "east", "south", "west"}
 			for l := 1; l < 4; l++ {
 				col := "site." + sites[l]
+				if r := byCol[col]; r.Level != sites[l] {
+					t.Errorf("%s: level %q, want %q", col, r.Level, sites[l])
+				}
 				switch coding {
 				case "treatment":
 					check(col, sites[l]+" against north", "", lo(l)-lo(0))
@@ -100,6 +103,9 @@ rules:
 			}
 			ratio := func(d float64) float64 { return logOdds(1, 1, d) - logOdds(0, 1, d) }
 			check(dz.Terms[4].Columns[0], "interaction: treat drug against placebo × per unit of log(dose + 1)", "", ratio(math.E*(1+1)-1)-ratio(1))
+			if r := byCol["dose"]; r.Level != "" {
+				t.Errorf("dose: level %q, want none", r.Level)
+			}
 			for _, col := range dz.Terms[dz.Term("age")].Columns {
 				if r := byCol[col]; r.Alone || !strings.HasPrefix(r.Change, "column ") {
 					t.Errorf("%s: a spline column read as %+v", col, r)
