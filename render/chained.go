@@ -50,19 +50,11 @@ func writeChained(d *doc, ch *runner.ChainedRecord, rows int, dz *design.Design,
 	}
 	if len(ch.Unlinked) > 0 {
 		d.p("**Warning:** imputed values that no observed data inform: where a column is missing in every row at a level of another, nothing in the data links the two, and the imputed sets fill that combination from the imputation models alone (each column imputed from the others in turn). The pooled estimates that involve it, with their standard errors and p-values, then restate those models, not the data, however many sets are imputed:")
-		items := make([]string, len(ch.Unlinked))
-		for i, u := range ch.Unlinked {
-			items[i] = mdText(u)
-		}
-		d.list(items)
+		d.list(words.Each(ch.Unlinked, mdText))
 	}
 	if len(ch.Unheld) > 0 {
 		d.p("Imputed values the data cannot hold (counted in the final sets; decisions.json gives the counts per column):")
-		items := make([]string, len(ch.Unheld))
-		for i, u := range ch.Unheld {
-			items[i] = mdText(u)
-		}
-		d.list(items)
+		d.list(words.Each(ch.Unheld, mdText))
 	}
 	if ch.ConvergenceTable {
 		var tr [][]string

@@ -33,11 +33,7 @@ func build(r *runner.Result, dec *runner.Decisions, changes []string) *doc {
 	d.toc()
 	if len(changes) > 0 {
 		d.h(2, "Changes since the previous run")
-		items := make([]string, len(changes))
-		for i, c := range changes {
-			items[i] = mdText(c) // names of columns, levels and models as text
-		}
-		d.list(items)
+		d.list(words.Each(changes, mdText)) // names of columns, levels and models as text
 	}
 	writeSummary(d, r)
 	writePlan(d, r)

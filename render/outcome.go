@@ -72,7 +72,7 @@ func writeData(d *doc, or *runner.OutcomeResult, sampling bool, cluster string, 
 		obs += " The rows of the workbook parts were read from " + mdText(ps) + "."
 	}
 	d.p("Outcome column %s, %d categories in this order: %s. %d rows read, %d used; %s.%s",
-		mdCode(or.Outcome.Column), len(ds.Categories), mdText(strings.Join(ds.Categories, " < ")), ds.RowsRead, ds.N, ds.DropSummary(), obs)
+		mdCode(or.Outcome.Column), len(ds.Categories), mdText(strings.Join(ds.Categories, " < ")), ds.RowsRead, ds.N, mdText(ds.DropSummary()), obs)
 	var rows [][]string
 	if ob := or.Observed; ob != nil {
 		// On imputed data: the observed values of the original file, not
@@ -203,7 +203,7 @@ func writeModelTable(d *doc, or *runner.OutcomeResult, sampling bool) {
 		d.p("%s", runner.SamplingCriteriaNote)
 	}
 	for _, n := range or.Notes {
-		d.p("%s.", strings.TrimSuffix(n, "."))
+		d.p("%s.", mdText(strings.TrimSuffix(n, ".")))
 	}
 	if n := collinearNote(or); n != "" {
 		d.p("%s", n)
