@@ -116,9 +116,10 @@ const rightCell = `<td style="text-align:right">`
 // logit model only", into a box of at most 16em (class why) in which they
 // wrap: as one line, which the column's cells keep, they made the column as
 // wide as the sentence and set its numbers far from the rest of the row.
-// Cells of numbers, with or without a bracket ("0.350 (0.107)", "<0.0001"),
-// are left alone: a cell is prose when its text has a run of four letters
-// and is longer than 24 characters.
+// Cells of numbers, with or without a bracket or a count ("0.350 (0.107)",
+// "<0.0001", "49.048 (13.463), 126 rows"), are left alone: a cell is prose
+// when its text is longer than 24 characters, has a run of four letters
+// and is mostly letters (of its characters other than spaces).
 func wrapNumberColumnProse(h string) string {
 	if !strings.Contains(h, rightCell) {
 		return h
@@ -147,7 +148,8 @@ func wrapNumberColumnProse(h string) string {
 }
 
 // cellIsProse reports whether a rendered cell's text (tags left out) is
-// words rather than a number: a run of four letters, over 24 characters.
+// words rather than a number: over 24 characters, a run of four letters,
+// and more letters than other characters besides spaces.
 func cellIsProse(cell string) bool {
 	var text strings.Builder
 	inTag := false
@@ -161,16 +163,23 @@ func cellIsProse(cell string) bool {
 			text.WriteRune(r)
 		}
 	}
-	n, run, words := 0, 0, false
+	n, run, words, letters, others := 0, 0, false, 0, 0
 	for _, r := range html.UnescapeString(text.String()) {
 		n++
-		if !unicode.IsLetter(r) {
+		switch {
+		case unicode.IsLetter(r):
+			letters++
+			if run++; run >= 4 {
+				words = true
+			}
+		case unicode.IsSpace(r):
 			run = 0
-		} else if run++; run >= 4 {
-			words = true
+		default:
+			others++
+			run = 0
 		}
 	}
-	return words && n > 24
+	return words && n > 24 && letters > others
 }
 
 // headingIDs gives the headings of report.html the anchors the table of

@@ -123,3 +123,26 @@ func TestLevelShownNamesUnspelledLevels(t *testing.T) {
 		}
 	}
 }
+
+// A right-aligned cell of words wraps in its box; a cell of numbers with a
+// count after them ("49.048 (13.463), 126 rows") stays one line.
+func TestNumberColumnProse(t *testing.T) {
+	for _, c := range []struct {
+		cell  string
+		prose bool
+	}{
+		{"not computed: defined for the cumulative logit model only", true},
+		{"0.000 (0 of 20; below 0.139 with 95% confidence)", true},
+		{"49.048 (13.463), 126 rows", false},
+		{"27.371 (7.900), 68 weighted rows", false},
+		{"0.350 (0.107)", false},
+		{"&lt;0.0001", false},
+		{"short words here", false},
+	} {
+		h := rightCell + c.cell + "</td>"
+		got := strings.Contains(wrapNumberColumnProse(h), `class="why"`)
+		if got != c.prose {
+			t.Errorf("%q: wrapped %v, want %v", c.cell, got, c.prose)
+		}
+	}
+}
