@@ -303,6 +303,10 @@ func writePatternSplit(d *doc, or *runner.OutcomeResult) {
 	d.captioned("Observed and expected counts by covariate pattern and half of predicted score").table(head, rows)
 }
 
+// observedPointSize is the diameter in pixels of the calibration chart's
+// points of observed shares.
+const observedPointSize = 8
+
 // calibrationChart draws, per category, the observed share in each group
 // (points) against the expected share (line).
 func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
@@ -336,8 +340,11 @@ func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 		col := categoryColor(j, J)
 		l.AddSeries(shown[j]+" expected", lineData(exp), lineStyle(col, 2, false, false)...)
 		fig.series = append(fig.series, figSeries{name: lv, color: col, ys: exp, legend: true}, figSeries{name: lv + " observed", color: col, ys: obs, points: true, noLine: true})
+		// The points are twice the library's size: at 4 pixels their
+		// colours, which tell the categories apart, could not be told.
 		l.AddSeries(shown[j]+" observed", lineData(obs), append(lineStyle(col, 0, false, true),
-			charts.WithLineStyleOpts(opts.LineStyle{Color: col, Width: 0, Opacity: opts.Float(0)}))...)
+			charts.WithLineStyleOpts(opts.LineStyle{Color: col, Width: 0, Opacity: opts.Float(0)}),
+			charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), Symbol: "circle", SymbolSize: observedPointSize}))...)
 	}
 	caption := "For each category, the expected share of each group (line) and the observed share (points). Points far from their line, in a pattern, show where the model misfits; groups are ordered by predicted score."
 	return newChart(fr, caption, l).with(fig)
