@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"ordplan/internal/words"
+	"ordplan/plan"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/data"
@@ -20,7 +21,7 @@ func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	d.h(2, "Outcome: "+mdText(or.Outcome.Label))
 	sampling := r.Analysis != nil && r.Analysis.Errors.Sampling
 	writeData(d, or, sampling, r.Plan.Data.Cluster, r.DataParts)
-	writeFreeSets(d, or)
+	writeFreeSets(d, r.Plan.Models, or)
 	writeModelTable(d, or, sampling)
 	writeOverallFit(d, or)
 	writeTests(d, r.Plan.Models.Backward(), or)
@@ -126,7 +127,14 @@ func writeData(d *doc, or *runner.OutcomeResult, sampling bool, cluster string, 
 	writeImputation(d, or, sampling, cluster)
 }
 
-func writeFreeSets(d *doc, or *runner.OutcomeResult) {
+// writeFreeSets writes the partial set of each approach and how a
+// stepwise selection chose it. A plan whose models read no partial set
+// (neither partial nor constrained effects) has no such section: a table
+// of sets "(none)" that no model uses read as if something were missing.
+func writeFreeSets(d *doc, m plan.Models, or *runner.OutcomeResult) {
+	if !m.HasEffects(fit.PartialEffects) && !m.HasEffects(fit.ConstrainedEffects) && len(or.Stepwise) == 0 {
+		return
+	}
 	d.h(3, "Partial sets")
 	var rows [][]string
 	for _, fs := range or.FreeSets {

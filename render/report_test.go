@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
+	"os"
 	"path/filepath"
 	"regexp"
 	"strings"
@@ -318,9 +319,39 @@ func TestStepwiseShowsTestsNotComputed(t *testing.T) {
 		}}},
 	}}}}
 	d := &doc{}
-	writeFreeSets(d, or)
+	writeFreeSets(d, plan.Models{}, or)
 	md := string(d.markdown())
 	if !strings.Contains(md, "| dose not computed ("+why+"); age chi2(2) = 0.477, p = 0.7876 |") || strings.Contains(md, "chi2(0)") {
 		t.Errorf("the step's tests:\n%s", md)
+	}
+}
+
+// A plan whose models read no partial set (neither partial nor
+// constrained effects) has no section "Partial sets" (it held a table of
+// "(none)"); the golden report, whose plan fits partial models, keeps it.
+func TestNoPartialSetsSectionWithoutPartialModels(t *testing.T) {
+	qs, err := filepath.Abs(filepath.Join("..", "plans", "data", "quietstreets.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	src := `version: 1
+data: {file: ` + qs + `}
+outcomes: [{column: safety, categories: [very_unsafe, unsafe, neutral, safe, very_safe]}]
+predictors: [pilot, age]
+models: {approaches: [cumulative], effects: [parallel, nonparallel], links: [logit]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: aic}
+`
+	md := string(renderSource(t, t.TempDir(), src, 1)["report.md"])
+	if strings.Contains(md, "Partial sets") {
+		t.Errorf("report.md has a section on partial sets that no model reads")
+	}
+	golden, err := os.ReadFile(filepath.Join("testdata", "golden", "report.md"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(golden), "### Partial sets") {
+		t.Errorf("the golden report lost its section on partial sets")
 	}
 }
