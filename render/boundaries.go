@@ -198,10 +198,19 @@ func chosenCell(res *fit.Result, k int) string {
 // and level, "region = Île-de-France", since the name alone does not say
 // which level it is; any other column by its name.
 func levelShown(c runner.ColumnReading) string {
-	if c.Level == "" || c.Column == c.Term+"."+c.Level {
+	if unspelledLevel(c) == "" {
 		return c.Column
 	}
 	return c.Term + " = " + c.Level
+}
+
+// unspelledLevel is the level a column of a categorical term stands for
+// when the column's name does not spell it, else "".
+func unspelledLevel(c runner.ColumnReading) string {
+	if c.Level == "" || c.Column == c.Term+"."+c.Level {
+		return ""
+	}
+	return c.Level
 }
 
 // boundaryChart draws one predictor's slopes across the boundaries;

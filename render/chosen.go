@@ -31,11 +31,23 @@ func writeChosen(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		d.p("**Warning:** %s.", n)
 	}
 	grouped := or.Design != nil && !or.Design.Trivial()
+	// A column whose name does not spell its level is followed by the
+	// level, as declared.
+	levels := map[string]string{}
+	for _, c := range or.ColumnReadings() {
+		if l := unspelledLevel(c); l != "" {
+			levels[c.Column] = l
+		}
+	}
 	var rows [][]string
 	for _, i := range paramOrder(res.ParamNames, or, grouped) {
 		n := res.ParamNames[i]
 		inf := res.ParamInference(i, level)
-		row := []string{ParamLabel(res, n), numfmt.Est(res.Estimates[i]), numfmt.Est(res.StdErrors[i]), numfmt.Z(inf.Stat),
+		label := ParamLabel(res, n)
+		if col, _, _ := strings.Cut(n, "["); levels[col] != "" {
+			label += " (" + levels[col] + ")"
+		}
+		row := []string{label, numfmt.Est(res.Estimates[i]), numfmt.Est(res.StdErrors[i]), numfmt.Z(inf.Stat),
 			numfmt.PValue(inf.P), numfmt.Est(inf.Low), numfmt.Est(inf.High)}
 		if grouped {
 			row = append([]string{termOfParam(or, n)}, row...)

@@ -134,6 +134,11 @@ rules:
 			t.Errorf("report.html holds %q from a name", tag)
 		}
 	}
+	// A level's column whose name lost the level's letters is followed by
+	// the level in the table of estimates.
+	if md := string(files["report.md"]); !strings.Contains(md, `| région.\_ber (Über) |`) {
+		t.Errorf("report.md's estimates do not name the level of région._ber")
+	}
 	text := visibleText(page)
 	for _, s := range append(append(slices.Clone(cats), levels...), "<i>dose</i>", "Odd <names> & `things` | *here*", "Score <u>label</u> & | *x*") {
 		if !strings.Contains(text, s) {
