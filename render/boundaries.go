@@ -280,7 +280,7 @@ func boundaryChart(d *doc, pred, shown, holds string, cats []string, est, se, cr
 			cv[m] = chosen.Effects[m][k]
 		}
 		l.AddSeries(chosenLevel+" (chosen)", lineData(cv), lineStyle(colorChosen, 2, true, true)...)
-		caption += ", the slopes of the chosen " + chosenLevel + " model (green, dashed)"
+		caption += ", the slopes of the chosen " + chosenLevel + " model (black, dashed)"
 	}
 	// The parallel line comes last so that it is drawn on top.
 	if par != nil {

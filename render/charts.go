@@ -199,10 +199,14 @@ func categoryColor(j, J int) string {
 	return fmt.Sprintf("#%02x%02x%02x", rgb[0], rgb[1], rgb[2])
 }
 
-// Colours of the series of the boundary charts.
+// Colours of the series of the boundary charts: blue, salmon and near
+// black, which stay apart for readers with red-green or blue-yellow colour
+// blindness too (TestBoundaryColoursApartUnderColourBlindness); the chosen
+// model's slopes were green, which red-green colour blindness makes the
+// parallel line's colour.
 const (
 	colorEstimate = "#4269d0"
 	colorParallel = "#ff725c"
-	colorChosen   = "#3ca951"
+	colorChosen   = "#2b2b2b"
 	colorMark     = "#6b6b6b" // legend entries of a mark alone, not of a series
 )
