@@ -27,6 +27,7 @@ nav.toc ul{margin:0.2em 0}tr:nth-child(even) td{background:#fafafa}code{backgrou
 .chart-figure.wide{flex-basis:100%}.chart{width:100%}figcaption{font-size:0.85em;color:#444;margin-top:0.3em}
 .chart-tools{font-size:0.8em;color:#555;margin-top:0.3em}.chart-tools button{font-size:1em;padding:0.1em 0.6em;margin-left:0.2em;border:1px solid #bbb;background:#f7f7f7;border-radius:3px;cursor:pointer}@media print{.chart-tools{display:none}}
 .why{display:inline-block;max-width:16em;white-space:normal}
+@media (max-width:600px){td:not([style*="right"]):not([style*="center"]){min-width:5em}}
 #js-errors{white-space:pre-wrap;color:#a00;border:2px solid #a00;padding:0.5em;margin:1em 0}#js-errors:empty{display:none}`
 
 // errorScript runs first: any script error on the page, or message to

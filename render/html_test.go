@@ -146,3 +146,23 @@ func TestNumberColumnProse(t *testing.T) {
 		}
 	}
 }
+
+// Every table of report.html scrolls in its own box (a wide table does not
+// widen the page), and on a phone's width a column of words may be as
+// narrow as 5em, so that a table of three such columns (model, verdict,
+// why) fits without scrolling.
+func TestTablesScrollAndFitPhones(t *testing.T) {
+	d := &doc{}
+	d.table([]string{"Model", "Verdict", "Why"}, [][]string{{"cumulative/parallel/logit", "kept", "a long reason in words"}})
+	page, err := d.html("t")
+	if err != nil {
+		t.Fatal(err)
+	}
+	h := string(page)
+	if strings.Count(h, `<div class="table-wrap"><table>`) != 1 || strings.Count(h, "</table></div>") != 1 {
+		t.Errorf("the table is not in a scroll box:\n%s", h)
+	}
+	if !strings.Contains(css, `@media (max-width:600px){td:not([style*="right"]):not([style*="center"]){min-width:5em}}`) {
+		t.Errorf("no narrower word columns on small screens")
+	}
+}
