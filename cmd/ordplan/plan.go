@@ -45,8 +45,7 @@ func cmdCheck(args []string, stdout, stderr io.Writer) int {
 	var dataWarnings []string
 	if !*noData {
 		if dataWarnings, err = runner.CheckData(p); err != nil {
-			fmt.Fprintln(stderr, err)
-			return exitFail
+			return fail(stderr, err) // as run prints the same errors
 		}
 	}
 	printRegistration(stdout, st, true)
