@@ -127,10 +127,33 @@ func notOpened(err error, path, file string) (where, reason string, ok bool) {
 	if !errors.As(err, &de) || de.Line != 0 || !strings.HasPrefix(de.Msg, "cannot open file") {
 		return "", "", false
 	}
+	return lookedFor(path, file), openReason(de.Err), true
+}
+
+// lookedFor says where the file named file in the plan was looked for,
+// " (looked for PATH)", when that differs from the name.
+func lookedFor(path, file string) string {
 	if path != filepath.Clean(filepath.FromSlash(file)) {
-		where = " (looked for " + path + ")"
+		return " (looked for " + path + ")"
 	}
-	return where, openReason(de.Err), true
+	return ""
+}
+
+// unreadableFile gives what makes the file at path no data file at all
+// ("is empty (...)", "is a folder, not a regular file: ..."), when err is
+// the reader's saying so.
+func unreadableFile(err error) (string, bool) {
+	var de *data.Error
+	if !errors.As(err, &de) || de.Line != 0 {
+		return "", false
+	}
+	switch {
+	case errors.Is(err, data.ErrEmptyFile):
+		return strings.TrimPrefix(de.Msg, "file "), true
+	case errors.Is(err, data.ErrNotRegular):
+		return de.Msg, true
+	}
+	return "", false
 }
 
 // dataHeader reads the header of data.file, reporting a file that cannot
@@ -143,6 +166,8 @@ func (d *decoder) dataHeader(p *Plan) ([]string, bool) {
 	if err != nil {
 		if where, reason, unopened := notOpened(err, p.Data.Path, p.Data.File); unopened {
 			d.errAt("data.file", "cannot open the data file %s%s: %s", strconv.Quote(p.Data.File), where, reason)
+		} else if what, ok := unreadableFile(err); ok {
+			d.errAt("data.file", "the data file %s%s %s", strconv.Quote(p.Data.File), lookedFor(p.Data.Path, p.Data.File), what)
 		} else {
 			d.reportDialect(p.Data.Path, "data file "+p.Data.File, p.Data.Dialect())
 		}

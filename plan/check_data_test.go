@@ -12,6 +12,9 @@ import (
 // file and reports a missing one at the key and line that name it.
 func TestLoadChecksColumnsAgainstData(t *testing.T) {
 	dir := t.TempDir()
+	if err := os.Mkdir(filepath.Join(dir, "folder"), 0o755); err != nil {
+		t.Fatal(err)
+	}
 	write := func(name, s string) string {
 		t.Helper()
 		p := filepath.Join(dir, name)
@@ -62,9 +65,14 @@ rules:
 			[]string{`p.yaml:3:10: data.parts: cannot open the part "sub/none.csv" (looked for ` + filepath.Join(dir, "sub", "none.csv") + `): no such file or directory`}},
 		{"part in another dialect", "file: d.csv", "parts: [semi.csv]",
 			[]string{`data.delimiter: data part semi.csv: the file looks semicolon-separated with a decimal comma`}},
+		// A file that is no data file at all (empty, a folder) is said at
+		// data.file, as one that cannot be opened.
+		{"empty data file", "file: d.csv", "file: empty.csv",
+			[]string{`p.yaml:3:9: data.file: the data file "empty.csv" (looked for ` + filepath.Join(dir, "empty.csv") + `) is empty (a header line naming the columns is needed)`}},
+		{"folder as the data file", "file: d.csv", "file: folder",
+			[]string{`p.yaml:3:9: data.file: the data file "folder" (looked for ` + filepath.Join(dir, "folder") + `) is a folder, not a regular file: ordplan reads data from files only (save the data to a file first)`}},
 		// Problems inside the data file are the data reader's: they are
 		// reported when the data are read, with the file's line numbers.
-		{"empty data file", "file: d.csv", "file: empty.csv", nil},
 		{"duplicate header column", "file: d.csv", "file: dup.csv", nil},
 	}
 	for i, c := range cases {

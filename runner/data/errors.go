@@ -1,11 +1,21 @@
 package data
 
 import (
+	"errors"
 	"fmt"
 	"strconv"
 	"strings"
 	"unicode"
 	"unicode/utf8"
+)
+
+// ErrEmptyFile and ErrNotRegular are the Err of the Error of a file that
+// holds nothing (not even a header line) and of a path that is not a
+// regular file (CheckRegular): the plan's check names data.file for them
+// (plan.dataHeader).
+var (
+	ErrEmptyFile  = errors.New("file is empty")
+	ErrNotRegular = errors.New("not a regular file")
 )
 
 // Error reports a problem with an input file. It renders on one line as

@@ -329,7 +329,7 @@ func CheckRegular(path string) error {
 	default:
 		what = "not a regular file"
 	}
-	return &Error{File: path, Msg: "is " + what + ", not a regular file: ordplan reads data from files only (save the data to a file first)"}
+	return &Error{File: path, Msg: "is " + what + ", not a regular file: ordplan reads data from files only (save the data to a file first)", Err: ErrNotRegular}
 }
 
 // sniff names formats that are not CSV text, from the first bytes:

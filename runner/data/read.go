@@ -235,7 +235,7 @@ func (r *reader) asNumbers(c usedCol) bool {
 func (r *reader) names() ([]string, map[string]int, error) {
 	hdr, err := r.cr.Read()
 	if err == io.EOF {
-		return nil, nil, &Error{File: r.file, Msg: "file is empty (a header line naming the columns is needed)"}
+		return nil, nil, &Error{File: r.file, Msg: "file is empty (a header line naming the columns is needed)", Err: ErrEmptyFile}
 	}
 	if err != nil {
 		// Quoted names in another dialect (a semicolon file's "a";"b"
