@@ -40,7 +40,16 @@ func writeChained(d *doc, ch *runner.ChainedRecord, rows int, dz *design.Design,
 		}
 		tab = append(tab, []string{md(mdCode(m.Column)), m.Kind, fmt.Sprint(m.Missing), sharePct(m.Missing, rows), w, strings.Join(m.Predictors, ", ")})
 	}
-	d.captioned("Imputation models").table([]string{"Column", "Kind", "Imputed", "Share", "Model", "Predictors"}, tab)
+	// What Imputed and Share count: rows, or under frequency weights the
+	// units the weights count (m.Missing and rows are units there).
+	counted := "rows"
+	if ch.UnitsIncomplete != nil {
+		counted = "units"
+	}
+	d.captioned("Imputation models").table([]string{"Column", "Kind", "Imputed " + counted, "Share of " + counted, "Model", "Predictors"}, tab)
+	if ch.UnitsIncomplete != nil {
+		d.p("Imputed units and their share count the %d units the frequency weights count, each imputed on its own, not the %d rows.", rows, kept)
+	}
 	if lack := termsImputationLacks(dz); lack != "" {
 		d.p("Transformations, polynomials, splines and interactions of the analysis were computed after imputation from the imputed columns (impute, then transform). The imputation models hold the columns as main effects only: the effects of %s can be attenuated, more so the more values are missing.", lack)
 	}

@@ -49,6 +49,7 @@ rules:
 		"imputed by this run from `d.csv`, as described below",
 		"The imputed sets were made by this run by chained equations (fully conditional specification; van Buuren 2018): 3 sets, each after 2 iterations through the incomplete columns, with seed 5",
 		"| `x2` | numeric |",
+		"| Column | Kind | Imputed rows | Share of rows | Model | Predictors |",
 		"predictive mean matching (5 donors)",
 		"Imputed values by iteration",
 		"Multiple imputation assumes that the values are missing at random given the columns in the imputation models",
@@ -288,6 +289,12 @@ rules:
 	section := fmt.Sprintf("Of the %d rows, %d (%s) had a missing value in the outcome or a predictor column and were imputed rather than dropped (%d of the %d units the frequency weights count, each imputed on its own).",
 		used, kept, sharePct(kept, used), unitsKept, units)
 	hasAll(t, "report.md", md, want, section)
+	// The table of imputation models counts units too, and says so: its
+	// header said "Imputed" and "Share" alone.
+	table := "| Column | Kind | Imputed units | Share of units | Model | Predictors |"
+	x2Row := fmt.Sprintf("| `x2` | numeric | %d | %s |", unitsKept, sharePct(unitsKept, units))
+	below := fmt.Sprintf("Imputed units and their share count the %d units the frequency weights count, each imputed on its own, not the %d rows.", units, used)
+	hasAll(t, "report.md", md, table, x2Row, below)
 	record := fmt.Sprintf("\"rows_incomplete\": %d,\n          \"units_incomplete\": %d,", kept, unitsKept)
 	hasAll(t, "decisions.json", string(files["decisions.json"]), record)
 	if regexp.MustCompile("missing by column: [^)]*`w`").MatchString(md) {
