@@ -58,6 +58,9 @@ func (d *decoder) checkParts(p *Plan) ([]string, bool) {
 					d.errAt("data.parts", "cannot open the part %s%s: %s", strconv.Quote(file), where, reason)
 				}
 				ok = false
+			} else if what, isnt := unreadableFile(err); isnt {
+				d.errAt("data.parts", "the part %s%s %s", strconv.Quote(file), lookedFor(path, file), what)
+				ok = false
 			}
 			continue // other problems with a part are the reader's to name
 		}

@@ -63,6 +63,8 @@ rules:
 		// The checks of data.file, made part by part for data.parts.
 		{"missing part", "file: d.csv", "parts: [d.csv, sub/none.csv]",
 			[]string{`p.yaml:3:10: data.parts: cannot open the part "sub/none.csv" (looked for ` + filepath.Join(dir, "sub", "none.csv") + `): no such file or directory`}},
+		{"empty part", "file: d.csv", "parts: [d.csv, empty.csv]",
+			[]string{`p.yaml:3:10: data.parts: the part "empty.csv" (looked for ` + filepath.Join(dir, "empty.csv") + `) is empty (a header line naming the columns is needed)`}},
 		{"part in another dialect", "file: d.csv", "parts: [semi.csv]",
 			[]string{`data.delimiter: data part semi.csv: the file looks semicolon-separated with a decimal comma`}},
 		// A file that is no data file at all (empty, a folder) is said at
