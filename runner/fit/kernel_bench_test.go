@@ -96,9 +96,31 @@ func atMarginalCutpoints(tb testing.TB, d *Data, m Model) (*problem, []float64) 
 // of both orders (the last three form each equation's log-odds with
 // Link.ratio).
 func BenchmarkAdjacentLinkKernels(b *testing.B) {
-	for _, l := range []Link{Logit, Probit, Cloglog, Loglog} {
+	benchLinkKernels(b, Adjacent, []Link{Logit, Probit, Cloglog, Loglog})
+}
+
+// BenchmarkCumulativeLinkKernels is BenchmarkAdjacentLinkKernels for the
+// cumulative comparison under the links other than the logit
+// (cumulativeKernels: a tail for the end categories, kernel.between for
+// the middle ones).
+func BenchmarkCumulativeLinkKernels(b *testing.B) {
+	benchLinkKernels(b, Cumulative, []Link{Probit, Cloglog, Loglog, Cauchy})
+}
+
+// BenchmarkStageLinkKernels is BenchmarkAdjacentLinkKernels for the
+// forward stage comparison under the links other than the logit (the
+// general row kernel, a sum of tails).
+func BenchmarkStageLinkKernels(b *testing.B) {
+	benchLinkKernels(b, Stage, []Link{Probit, Cloglog, Loglog, Cauchy})
+}
+
+// benchLinkKernels times the row kernels of one block (J = 5, parallel
+// effects, K = 10, derivatives of both orders) of comparison cmp under
+// each link: CPU ns per block.
+func benchLinkKernels(b *testing.B, cmp Comparison, links []Link) {
+	for _, l := range links {
 		d := speedData(blockRows, 10, 5)
-		m := speedModel(Adjacent, Parallel, 10)
+		m := speedModel(cmp, Parallel, 10)
 		m.Link = l
 		p, theta := atMarginalCutpoints(b, d, m)
 		for i := range theta[d.J-1:] {
