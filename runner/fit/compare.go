@@ -178,28 +178,32 @@ func (k *kernel) between(a, b float64, derivs bool) (m middle, ok bool) {
 	}
 	lfb, qb := k.link.logDensity(b)
 	lfa, qa := k.link.logDensity(a)
-	m.rb, m.ra = math.Exp(lfb-m.lp), math.Exp(lfa-m.lp)
+	m.rb, m.ra = fastExp(lfb-m.lp), fastExp(lfa-m.lp)
 	m.setSecond(qa, qb)
 	return m, true
 }
 
 // logDiffCDF is log(F(b) - F(a)) for b > a, from whichever tail keeps the
-// digits.
+// digits: the lower tails while the midpoint is at most the link's median
+// (F there at most 1/2), else the upper ones; the tails' values alone
+// (logTail).
 func logDiffCDF(l Link, a, b float64) float64 {
-	if l.cdf(0.5*(a+b)) <= 0.5 {
-		la, lb := l.lower(a).v, l.lower(b).v
-		return lb + log1mexp(la-lb)
+	up := 0.5*(a+b) > l.median()
+	ta, tb := l.logTail(a, up), l.logTail(b, up)
+	if up {
+		return ta + log1mexp(tb-ta)
 	}
-	ua, ub := l.upper(a).v, l.upper(b).v
-	return ua + log1mexp(ub-ua)
+	return tb + log1mexp(ta-tb)
 }
 
-// log1mexp is log(1 - e^x) for x <= 0.
+// log1mexp is log(1 - e^x) for x <= 0: from expm1 above -log 2, where
+// 1 - e^x is small; beyond, log1p of -e^x, at least -1/2 (fastLog1p's
+// range).
 func log1mexp(x float64) float64 {
 	if x > -math.Ln2 {
-		return math.Log(-math.Expm1(x))
+		return fastLog(-math.Expm1(x))
 	}
-	return math.Log1p(-math.Exp(x))
+	return fastLog1p(-fastExp(x))
 }
 
 // tailRange is the equations lo..hi-1 whose log-tails make log P(y = c)

@@ -51,19 +51,19 @@ func (l Link) lower(z float64) tail {
 		v, lam := logPhiMills(z)
 		return tail{v, lam, -lam * (z + lam)}
 	case Cloglog:
-		// F = 1-exp(-e^z). log F = log(-expm1(-u)), u = e^z: one expm1
-		// for F and one for e^u - 1, each shared by the value and the
-		// derivatives.
-		u := math.Exp(z)
+		// F = 1-exp(-e^z), u = e^z: F and e^-u (cloglogLower, one
+		// exponential more and, below u = 1, one expm1) shared by the
+		// value and the derivatives.
+		u, e, F, v := cloglogLower(z)
 		if u == 0 {
 			// F ~ u: log F ~ z, derivatives 1 and 0
-			return tail{z, 1, 0}
+			return tail{v, 1, 0}
 		}
-		F, eu := -math.Expm1(-u), math.Expm1(u)
-		v := math.Log(F)
-		a := u / eu // d log F / dz
-		if math.IsInf(eu, 1) {
-			a = 0
+		// d log F / dz = u e^-u / F = u / (e^u - 1): 0 once e^-u
+		// underflows (u may then be infinite).
+		a := 0.0
+		if e > 0 {
+			a = u * e / F
 		}
 		// d a/dz = a - u*a*e^u/(e^u-1) = a*(1 - u/F) = -a*bend(u)*(u/F),
 		// F - u = -(e^-u - 1 + u): written so, the bracket does not cancel
@@ -81,7 +81,7 @@ func (l Link) lower(z float64) tail {
 		f := 1 / (math.Pi * (1 + z*z))
 		r := f / F
 		fp := -2 * z / (1 + z*z) * f
-		return tail{math.Log(F), r, fp/F - r*r}
+		return tail{fastLog(F), r, fp/F - r*r}
 	}
 	panic("fit: unknown link")
 }
@@ -96,13 +96,79 @@ func (l Link) upper(z float64) tail {
 		t := l.lower(-z)
 		return tail{t.v, -t.d1, t.d2}
 	case Cloglog:
-		u := math.Exp(z)
+		u := fastExp(z)
 		return tail{-u, -u, -u}
 	case Loglog:
 		t := Cloglog.lower(-z)
 		return tail{t.v, -t.d1, t.d2}
 	}
 	panic("fit: unknown link")
+}
+
+// logTail is lower(z).v (log F(z)) or, when up is set, upper(z).v
+// (log(1 - F(z))), the same formulas without the derivatives: what the
+// log-space difference of two tails (logDiffCDF) takes.
+func (l Link) logTail(z float64, up bool) float64 {
+	switch l {
+	case Logit:
+		p := newLogitPoint(z)
+		if up {
+			return p.logFc()
+		}
+		return p.logF()
+	case Probit:
+		if up {
+			z = -z
+		}
+		return logPhi(z)
+	case Cloglog:
+		if up {
+			return -fastExp(z)
+		}
+		_, _, _, v := cloglogLower(z)
+		return v
+	case Loglog:
+		return Cloglog.logTail(-z, !up)
+	case Cauchy:
+		if up {
+			z = -z
+		}
+		return fastLog(cauchyCDF(z))
+	}
+	panic("fit: unknown link")
+}
+
+// median is the z of F(z) = 1/2: log log 2 for the cloglog link, its
+// negative for the loglog, 0 for the symmetric links.
+func (l Link) median() float64 {
+	switch l {
+	case Cloglog:
+		return logLog2
+	case Loglog:
+		return -logLog2
+	}
+	return 0
+}
+
+// logLog2 is log(log 2), the cloglog link's median.
+var logLog2 = math.Log(math.Ln2)
+
+// cloglogLower returns u = e^z, e = e^-u, F = 1 - e^-u and log F under
+// the cloglog link: F as 1 - e from u = 1 on (e at most 1/e, so F keeps
+// its digits), from expm1 below; u = 0 (F then u to the last digit) gives
+// log F = z, e and F unset.
+func cloglogLower(z float64) (u, e, F, v float64) {
+	u = fastExp(z)
+	if u == 0 {
+		return 0, 0, 0, z
+	}
+	e = fastExp(-u)
+	if u >= 1 {
+		F = 1 - e
+	} else {
+		F = -math.Expm1(-u)
+	}
+	return u, e, F, fastLog(F)
 }
 
 // ratio returns psi = log F(z) - log(1-F(z)), the log-odds of the
@@ -120,7 +186,7 @@ func (l Link) upper(z float64) tail {
 // phi/Q and its second phi/Q (phi/Q - z) - phi/P (z + phi/P), lower's and
 // upper's terms.
 //
-// Cloglog: u = e^z, F = 1 - e^-u, psi = log F + u; its first derivative
+// Cloglog: u = e^z, F = 1 - e^-u (cloglogLower), psi = log F + u; its first derivative
 // u/F (lower's a = u e^-u / F plus upper's u), its second u - a bend(u)
 // u/F (lower's second derivative, see lower, plus upper's u).
 func (l Link) ratio(z float64) (v, d1, d2 float64, ok bool) {
@@ -138,14 +204,13 @@ func (l Link) ratio(z float64) (v, d1, d2 float64, ok bool) {
 		lp, lq := phi/P, phi/Q
 		return fastLog(P / Q), lp + lq, lq*(lq-z) - lp*(z+lp), true
 	case Cloglog:
-		u := fastExp(z)
+		u, e, F, lf := cloglogLower(z)
 		if !(u >= 1e-300 && u <= 700) {
 			return 0, 0, 0, false
 		}
-		F := -math.Expm1(-u)
-		a := u * fastExp(-u) / F
+		a := u * e / F
 		r := u / F
-		return fastLog(F) + u, r, u - a*bendOf(u, F)*r, true
+		return lf + u, r, u - a*bendOf(u, F)*r, true
 	case Loglog:
 		// F(z) = 1 - F_cloglog(-z): psi(z) = -psi_cloglog(-z).
 		v, d1, d2, ok := Cloglog.ratio(-z)
@@ -197,15 +262,15 @@ func (l Link) logDensity(z float64) (float64, float64) {
 	case Logit:
 		return newLogitPoint(z).logDensity()
 	case Probit:
-		return -0.5*z*z - 0.5*math.Log(2*math.Pi), -z
+		return -0.5*z*z - logHalfTwoPi, -z
 	case Cloglog:
-		u := math.Exp(z)
+		u := fastExp(z)
 		return z - u, 1 - u
 	case Loglog:
-		u := math.Exp(-z)
+		u := fastExp(-z)
 		return -z - u, u - 1
 	case Cauchy:
-		return -math.Log(math.Pi) - math.Log1p(z*z), -2 * z / (1 + z*z)
+		return -logPi - fastLog1p(z*z), -2 * z / (1 + z*z)
 	}
 	panic("fit: unknown link")
 }
@@ -365,30 +430,34 @@ func cauchyCDF(z float64) float64 {
 // logPhi is log Phi(z), accurate far into the lower tail.
 func logPhi(z float64) float64 {
 	if z > -30 {
-		return math.Log(0.5 * math.Erfc(-z/math.Sqrt2))
+		return fastLog(0.5 * math.Erfc(-z/math.Sqrt2))
 	}
 	// Phi(z) = phi(z) * R(-z), R the Mills ratio.
-	return -0.5*z*z - 0.5*math.Log(2*math.Pi) + math.Log(millsRatio(-z))
+	return -0.5*z*z - logHalfTwoPi + fastLog(millsRatio(-z))
 }
 
-// logHalfTwoPi is log(2 pi)/2, the normal density's constant.
-var logHalfTwoPi = 0.5 * math.Log(2*math.Pi)
+// logHalfTwoPi is log(2 pi)/2, the normal density's constant; logPi is
+// log pi, the Cauchy density's.
+var (
+	logHalfTwoPi = 0.5 * math.Log(2*math.Pi)
+	logPi        = math.Log(math.Pi)
+)
 
 // logPhiMills is logPhi(z) and millsInv(z), the same values, from one
 // erfc (or one continued fraction far in the lower tail).
 func logPhiMills(z float64) (float64, float64) {
 	if z > -30 {
 		P := 0.5 * math.Erfc(-z/math.Sqrt2)
-		return math.Log(P), math.Exp(-0.5*z*z-logHalfTwoPi) / P
+		return fastLog(P), fastExp(-0.5*z*z-logHalfTwoPi) / P
 	}
 	r := millsRatio(-z)
-	return -0.5*z*z - logHalfTwoPi + math.Log(r), 1 / r
+	return -0.5*z*z - logHalfTwoPi + fastLog(r), 1 / r
 }
 
 // millsInv is phi(z)/Phi(z).
 func millsInv(z float64) float64 {
 	if z > -30 {
-		return math.Exp(-0.5*z*z-0.5*math.Log(2*math.Pi)) / (0.5 * math.Erfc(-z/math.Sqrt2))
+		return fastExp(-0.5*z*z-logHalfTwoPi) / (0.5 * math.Erfc(-z/math.Sqrt2))
 	}
 	return 1 / millsRatio(-z)
 }
@@ -428,9 +497,10 @@ func bend(u float64) float64 {
 	return (math.Expm1(-u) + u) / u
 }
 
-// bendOf is bend(u) with F = 1 - e^-u at hand (= -expm1(-u), as lower
-// forms it), which it takes from 1/2 on instead of a second expm1: the
-// same value, bit for bit.
+// bendOf is bend(u) with F = 1 - e^-u at hand (as cloglogLower forms it:
+// -expm1(-u) below u = 1, the same value as bend bit for bit; 1 - e^-u
+// from 1 on, within an ulp of it), which it takes from 1/2 on instead of
+// a second expm1.
 func bendOf(u, F float64) float64 {
 	if u < 0.5 {
 		c := &bendTerms
