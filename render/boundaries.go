@@ -115,7 +115,7 @@ func writeBoundaryEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		d.captioned(fmt.Sprintf("Slopes at each boundary, %s", npID)).table(head, rows)
 	}
 	if len(skipped) > 0 {
-		d.p("Not drawn for %s: the nonparallel fit gives no finite standard error for every boundary.", strings.Join(skipped, ", "))
+		d.p("Not drawn for %s: the nonparallel fit gives no finite standard error for every boundary.", mdText(strings.Join(skipped, ", ")))
 	}
 	d.charts("Charts in report.html: the slope of each predictor across the boundaries, one chart per predictor.", cs...)
 }

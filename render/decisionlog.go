@@ -30,7 +30,7 @@ func writeDecisionLog(d *doc, or *runner.OutcomeResult) {
 		d.p("- %s %s", f[0], f[1])
 	}
 	for i, ro := range or.Rules {
-		d.p("**Rule %d, `%s`** (plan line %d). %s", i+1, ro.Rule.Kind, ro.Rule.Line, ro.Description)
+		d.p("**Rule %d, `%s`** (plan line %d). %s", i+1, ro.Rule.Kind, ro.Rule.Line, mdText(ro.Description))
 		choosing := ro.Rule.Final()
 		var rows [][]string
 		for _, v := range ro.Verdicts {

@@ -264,7 +264,7 @@ func writePatternSplit(d *doc, or *runner.OutcomeResult) {
 		df = "G(J − 1) − P degrees of freedom, the usual count for grouped data (G groups, J categories, P parameters of the model)"
 	}
 	d.p("The rows are grouped by the combination of the levels of the categorical predictors (%s: %d patterns); %s. The Pearson statistic Σ(O − E)²/E and the deviance 2 Σ O log(O/E) over groups and categories compare the observed counts O with the expected counts E, and are referred to chi-square on %s. The reference distribution is approximate: see the documentation of the models for how it was checked by simulation.",
-		strings.Join(rec.Predictors, ", "), t.Patterns, split, df)
+		mdText(strings.Join(rec.Predictors, ", ")), t.Patterns, split, df)
 	for _, ts := range []struct {
 		name string
 		test fit.Test

@@ -151,7 +151,7 @@ func writePairsAtPoints(d *doc, r *runner.Result, or *runner.OutcomeResult, set 
 			pooled = fmt.Sprintf(" On imputed data each difference was computed on each of the %d imputed sets (that set's fit, %s) and pooled by Rubin's rules, as the marginal effects %s are: p-values and intervals use t on the Barnard-Rubin degrees of freedom (df; inf when the sets agree)%s, and FMI is the fraction of missing information.", or.Imputed.M, own, at, pooledClusterDF(or.Chosen.Result))
 		}
 		d.p("**Pairs %s.** For the pair \"a to b\" the difference is the probability of each category predicted for one unit with %s at b less that predicted with %s at a, %s: %s. The pairs from the reference %s are the marginal effects of %s %s above; a pair of two other levels is the difference of their effects against the reference at this point. Standard errors by the delta method on the whole covariance of the model's parameters; intervals at %s, symmetric about the difference.%s%s %s",
-			at, name, name, held, pointExcept(or, me.Point, s), mdText(set.Levels[0]), name, at, pct(level), overridden, pooled,
+			at, name, name, held, mdText(pointExcept(or, me.Point, s)), mdText(set.Levels[0]), name, at, pct(level), overridden, pooled,
 			pairFamilyText(set, "the pairs for one category "+at))
 		if me.Kind == "means" && r.Analysis != nil && r.Analysis.Errors.Sampling {
 			d.p("%s", samplingMeansNote)

@@ -39,13 +39,13 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			if or.Design != nil && slices.ContainsFunc(or.Design.Terms, func(t design.Term) bool { return t.Kind == design.KindCategorical }) {
 				at = "every numeric predictor at its mean and every categorical one at its reference level, not at its shares in the data"
 			}
-			d.p("The same effects at one point: %s (%s), a 0/1 predictor changed from 0 to 1 with the others at that point. Standard errors by the delta method; intervals at %s, symmetric about the effect (the effect plus and minus a quantile times its standard error, since an effect, a change of a probability, can be negative).%s", at, pointList(or, set.Point), pct(level), categorical)
+			d.p("The same effects at one point: %s (%s), a 0/1 predictor changed from 0 to 1 with the others at that point. Standard errors by the delta method; intervals at %s, symmetric about the effect (the effect plus and minus a quantile times its standard error, since an effect, a change of a probability, can be negative).%s", at, mdText(pointList(or, set.Point)), pct(level), categorical)
 			if sampling {
 				d.p("%s", samplingMeansNote)
 			}
 		case "profile":
 			d.h(3, "Marginal effects at the plan's profile")
-			d.p("The effects at the point %s (predictors the plan's profile does not set are at their means, categorical ones at their reference level; a 0/1 predictor is changed from 0 to 1, any other numeric predictor differentiated, at that point). Standard errors by the delta method; intervals at %s, symmetric about the effect (the effect plus and minus a quantile times its standard error, since an effect, a change of a probability, can be negative).%s", pointList(or, set.Point), pct(level), categorical)
+			d.p("The effects at the point %s (predictors the plan's profile does not set are at their means, categorical ones at their reference level; a 0/1 predictor is changed from 0 to 1, any other numeric predictor differentiated, at that point). Standard errors by the delta method; intervals at %s, symmetric about the effect (the effect plus and minus a quantile times its standard error, since an effect, a change of a probability, can be negative).%s", mdText(pointList(or, set.Point)), pct(level), categorical)
 			profileOutsideNote(d, or, "effects")
 		}
 		if set.Error != "" {

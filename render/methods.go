@@ -179,7 +179,7 @@ func writeMethods(d *doc, r *runner.Result) {
 		s = append(s, fmt.Sprintf("Standard errors came from the %s.", covarianceWords(r.Analysis.Errors, mdCode(p.Data.Cluster), runner.ClusterCount(or.Data), c)))
 		var rules []string
 		for i, ro := range or.Rules {
-			rules = append(rules, fmt.Sprintf("(%d) %s", i+1, strings.TrimSuffix(ro.Description, ".")))
+			rules = append(rules, fmt.Sprintf("(%d) %s", i+1, mdText(strings.TrimSuffix(ro.Description, "."))))
 		}
 		if len(rules) > 0 {
 			s = append(s, "The plan's decision rules were applied in order: "+strings.Join(rules, "; ")+".")
@@ -709,7 +709,7 @@ func goodnessOfFitMethods(or *runner.OutcomeResult, c *citer) []string {
 			}
 		}
 		if len(done) > 0 {
-			s = append(s, fmt.Sprintf("Its fit by covariate pattern of the categorical predictors (%s) was checked with the Pulkstenis-Robinson %s %s %s.", strings.Join(ps.Predictors, ", "), strings.Join(done, " and "), "test"+plural(len(done)), c.cite("pulkstenis")))
+			s = append(s, fmt.Sprintf("Its fit by covariate pattern of the categorical predictors (%s) was checked with the Pulkstenis-Robinson %s %s %s.", mdText(strings.Join(ps.Predictors, ", ")), strings.Join(done, " and "), "test"+plural(len(done)), c.cite("pulkstenis")))
 		}
 	}
 	if or.GOFPooling == nil || len(pooled) == 0 {

@@ -2,6 +2,8 @@ package render
 
 import (
 	"fmt"
+	"math"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"strings"
@@ -41,5 +43,94 @@ rules:
 		"Predictor column \"\\*x\\*\" is observed in 30 of the 90 rows")
 	if h := string(files["report.html"]); strings.Contains(h, "<em>x</em>") {
 		t.Error("report.html shows the column *x* in italics")
+	}
+}
+
+// A study whose columns, levels and cluster column hold Markdown and HTML
+// ("*x*", "a_b_", "<b>z</b>", "<i>g</i>", levels "<b>L</b>", "*w*",
+// "_u_") and that meets the runner's warnings and notes: *x* missing in
+// most rows, errors clustered by 6 clusters, the level *w* in one cluster
+// (its test not computed), a sensitivity analysis imputing *x* and one
+// without the clusters. report.html shows every name as written, in the
+// rules' descriptions (the cluster column), the Pulkstenis-Robinson
+// patterns, the point of the marginal effects at the means and the rows
+// of the sensitivity analyses (the imputation models' predictors) and the
+// columns whose slopes across boundaries are not drawn, which
+// were written raw; report.md escapes each name once (no "\\").
+func TestRunnerTextShowsNamesLiterally(t *testing.T) {
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(7, 11))
+	var b strings.Builder
+	b.WriteString("y,*x*,a_b_,<b>z</b>,<i>g</i>\n")
+	levels := []string{"<b>L</b>", "*w*", "_u_"}
+	for g := range 6 {
+		for range 40 {
+			x, u, z := rng.NormFloat64(), rng.Float64(), rng.NormFloat64()
+			lv := []int{0, 2}[rng.IntN(2)]
+			if g == 0 {
+				lv = rng.IntN(3) // *w* only in cluster k0
+			}
+			eta := 0.7*x + 0.3*float64(lv) + 0.2*z
+			y := 1
+			for _, cut := range []float64{-1, 0, 1} {
+				if math.Log(u/(1-u))+eta > cut {
+					y++
+				}
+			}
+			xs := fmt.Sprintf("%.4f", x)
+			if rng.Float64() < 0.6 {
+				xs = ""
+			}
+			fmt.Fprintf(&b, "%d,%s,%s,%.3f,k%d\n", y, xs, levels[lv], z, g)
+		}
+	}
+	if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	src := `version: 1
+data: {file: d.csv, cluster: "<i>g</i>"}
+outcomes: [{column: y}]
+categorical: {"a_b_": {levels: ["<b>L</b>", "*w*", "_u_"]}}
+predictors: ["*x*", "a_b_", "<b>z</b>"]
+models: {approaches: [cumulative], effects: [parallel, nonparallel]}
+tests: {parallel_lines: [wald, lr, brant]}
+rules:
+  - choose: {by: aic}
+covariance: clustered
+inference:
+  hypotheses: ["a_b_ = 0"]
+  marginal_effects: [average, means]
+sensitivity:
+  - name: "imp_*x*_"
+    why: "the *x* column is mostly missing"
+    change: {data.missing: impute}
+  - name: "sand"
+    why: "robust"
+    change: {covariance: sandwich, data.cluster: null}
+`
+	files := renderSource(t, dir, src, 1)
+	page, md := string(files["report.html"]), string(files["report.md"])
+	if d := os.Getenv("ORDPLAN_ODD_DIR"); d != "" {
+		_ = os.WriteFile(filepath.Join(d, "report.md"), files["report.md"], 0o644)
+		_ = os.WriteFile(filepath.Join(d, "report.html"), files["report.html"], 0o644)
+	}
+	for _, bad := range []string{"raw HTML omitted", "<em>", "<b>L", "<b>z", "<i>g"} {
+		if strings.Contains(page, bad) {
+			t.Errorf("report.html holds %q from a name", bad)
+		}
+	}
+	hasAll(t, "report.html (visible text)", visibleText(page),
+		"AIC takes every observation as independent: the clusters of <i>g</i> that the clustered",
+		`column "<i>g</i>" holds 6 clusters`,
+		"standard errors of a_b_._w_ are not estimable",
+		"(a_b_: 3 patterns)",
+		"categorical predictors (a_b_) was checked",
+		"(*x* = ", "a_b_ = <b>L</b>, <b>z</b> = ",
+		"imp_*x*_: 240 rows read",
+		"by predictive mean matching (5 donors) given y, a_b_, <b>z</b>.",
+		"dropped for missing values (*x*: 147)",
+		"Not drawn for a_b_._w_: the nonparallel fit")
+	if strings.Contains(md, `\\`) {
+		t.Error("report.md escapes a name twice")
 	}
 }

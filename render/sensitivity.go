@@ -286,7 +286,7 @@ func sensitivityRows(sr *runner.SensitivityResult, sor *runner.OutcomeResult) st
 				if m.Method == chained.MeanMatching {
 					w = fmt.Sprintf(w, ch.Donors)
 				}
-				models = append(models, fmt.Sprintf("%s (%d values) by %s given %s", mdCode(m.Column), m.Missing, w, strings.Join(m.Predictors, ", ")))
+				models = append(models, fmt.Sprintf("%s (%d values) by %s given %s", mdCode(m.Column), m.Missing, w, mdText(strings.Join(m.Predictors, ", "))))
 			}
 			incomplete, rows, units := chainedRows(ch, im.Rows)
 			if units != "" {
