@@ -55,7 +55,7 @@ func writeChained(d *doc, ch *runner.ChainedRecord, rows int, dz *design.Design,
 	}
 	if len(ch.Notes) > 0 {
 		d.p("What the imputation models needed:")
-		d.list(ch.Notes)
+		d.list(words.Each(ch.Notes, mdText))
 	}
 	if len(ch.Unlinked) > 0 {
 		d.p("**Warning:** imputed values that no observed data inform: where a column is missing in every row at a level of another, nothing in the data links the two, and the imputed sets fill that combination from the imputation models alone (each column imputed from the others in turn). The pooled estimates that involve it, with their standard errors and p-values, then restate those models, not the data, however many sets are imputed:")
@@ -135,7 +135,7 @@ func imputationMethods(im *runner.ImputedRun, mt *data.MissingTable, dz *design.
 				cols = append(cols, o.Column)
 			}
 		}
-		models = append(models, fmt.Sprintf("%s for %s", w, words.AndList(cols)))
+		models = append(models, fmt.Sprintf("%s for %s", w, words.AndList(words.Each(cols, mdText))))
 	}
 	fallback := ""
 	for _, n := range ch.Notes {
@@ -223,15 +223,15 @@ func termsImputationLacks(dz *design.Design) string {
 	for _, r := range dz.Records() {
 		switch {
 		case r.Kind == design.KindInteraction:
-			inter = append(inter, r.Term)
+			inter = append(inter, mdText(r.Term))
 		case r.Log:
-			curves = append(curves, r.Term+" (log)")
+			curves = append(curves, mdText(r.Term)+" (log)")
 		case r.Sqrt:
-			curves = append(curves, r.Term+" (square root)")
+			curves = append(curves, mdText(r.Term)+" (square root)")
 		case r.Poly > 1:
-			curves = append(curves, r.Term+" (polynomial)")
+			curves = append(curves, mdText(r.Term)+" (polynomial)")
 		case len(r.Knots) > 0:
-			curves = append(curves, r.Term+" (spline)")
+			curves = append(curves, mdText(r.Term)+" (spline)")
 		}
 	}
 	var what []string

@@ -68,13 +68,13 @@ func writeOverallFit(d *doc, or *runner.OutcomeResult) {
 	d.captioned("Overall fit: each candidate against its thresholds-only model (LL₀ its log-likelihood), and pseudo-R²").table(head, rows)
 	for _, o := range or.Overall {
 		if !o.LR.OK && !o.LR.Negative && o.LR.Reason != "" {
-			d.p("The likelihood-ratio statistics are not tests here: %s.", o.LR.Reason)
+			d.p("The likelihood-ratio statistics are not tests here: %s.", mdText(o.LR.Reason))
 			break
 		}
 	}
 	for _, o := range or.Overall {
 		if o.LR.Negative {
-			d.p("%s against its thresholds-only model: %s.", o.Model, o.LR.Reason)
+			d.p("%s against its thresholds-only model: %s.", o.Model, mdText(o.LR.Reason))
 		}
 	}
 }
@@ -89,7 +89,7 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	level, _ := confidence(r)
 	tab, err := runner.OddsRatios(res, or.ColumnReadings(), level)
 	if err != nil {
-		d.p("Odds ratios not computed: %s.", err)
+		d.p("Odds ratios not computed: %s.", mdText(err.Error()))
 		return
 	}
 	kind := fit.OddsRatioKind(res.Model)
@@ -116,7 +116,7 @@ func writeOddsRatios(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		d.p("A column whose term enters an interaction has its odds ratio where the terms it interacts with have their columns at 0 (column Holds at). The exp(b) of an interaction column is a ratio of odds ratios: the factor by which the odds ratio of one of its components changes with a unit of the other.")
 	}
 	if len(tab.Omitted) > 0 {
-		d.p("Not shown: the columns of %s. A column of a polynomial or spline basis (or a product with one) has no odds ratio of its own, since a unit change of one basis column with the others held fixed is no change of the predictor, and neither has a term whose data column also makes another term (it cannot change with that term held fixed); the effect of such a term is in the marginal effects and the predicted probabilities. Their estimates are in the table above.", strings.Join(tab.Omitted, ", "))
+		d.p("Not shown: the columns of %s. A column of a polynomial or spline basis (or a product with one) has no odds ratio of its own, since a unit change of one basis column with the others held fixed is no change of the predictor, and neither has a term whose data column also makes another term (it cannot change with that term held fixed); the effect of such a term is in the marginal effects and the predicted probabilities. Their estimates are in the table above.", mdText(strings.Join(tab.Omitted, ", ")))
 	}
 	var rows [][]string
 	for _, o := range tab.Rows {
@@ -191,7 +191,7 @@ func writeGoodnessOfFit(d *doc, or *runner.OutcomeResult) {
 	d.h(3, "Goodness of fit of the chosen model")
 	t := lz.Table
 	if t == nil {
-		d.p("Not computed: %s.", lz.Test.Reason)
+		d.p("Not computed: %s.", mdText(lz.Test.Reason))
 		return
 	}
 	d.p("Rows are sorted by their predicted ordinal score (the expected category, categories scored 1 to %d) and cut into %d groups of about equal size; rows with the same score stay in one group. The Lipsitz test refits the chosen model with an indicator of each group but the first as an extra parallel predictor: if the model describes the data well along its own score, those indicators add nothing.",
@@ -200,13 +200,13 @@ func writeGoodnessOfFit(d *doc, or *runner.OutcomeResult) {
 		d.p("On imputed data (%d sets): %s.", or.Imputed.M, pl.Note)
 	}
 	if lz.Test.Negative && lz.Test.Pooled != "" {
-		d.p("Lipsitz test, pooled over the imputed sets by %s (approximate): %s, %s.", lz.Test.Pooled, runner.TestStatistic(lz.Test), lz.Test.Reason)
+		d.p("Lipsitz test, pooled over the imputed sets by %s (approximate): %s, %s.", lz.Test.Pooled, runner.TestStatistic(lz.Test), mdText(lz.Test.Reason))
 	} else if lz.Test.OK && lz.Test.Pooled != "" {
 		d.p("Lipsitz test, pooled over the imputed sets by %s (approximate): %s, %s.%s", lz.Test.Pooled, runner.TestStatistic(lz.Test), numfmt.PText(lz.Test.P), cautionText(lz.Test))
 	} else if lz.Test.OK {
 		d.p("Lipsitz test: chi-square(%d) = %s, %s.", lz.Test.DF, numfmt.Stat(lz.Test.Chi2), numfmt.PText(lz.Test.P))
 	} else {
-		d.p("Lipsitz test not computed: %s.", lz.Test.Reason)
+		d.p("Lipsitz test not computed: %s.", mdText(lz.Test.Reason))
 	}
 	d.p("Observed and expected counts (the sum of the predicted probabilities) of each category in each group:")
 	head := []string{"Group", "Score range", "N"}
@@ -253,7 +253,7 @@ func writePatternSplit(d *doc, or *runner.OutcomeResult) {
 	}
 	d.h(4, "Tests by covariate pattern (Pulkstenis-Robinson)")
 	if rec.PatternSplit == nil {
-		d.p("Not applicable: %s.", rec.NotComputed)
+		d.p("Not applicable: %s.", mdText(rec.NotComputed))
 		return
 	}
 	t := rec.PatternSplit
@@ -271,7 +271,7 @@ func writePatternSplit(d *doc, or *runner.OutcomeResult) {
 	}{{"Pearson", t.Pearson}, {"Deviance", t.Deviance}} {
 		switch {
 		case ts.test.Negative && ts.test.Pooled != "":
-			d.p("%s, pooled over the imputed sets by %s (approximate; each set's statistic on chi-square(%d)): %s, %s.", ts.name, ts.test.Pooled, ts.test.DF, runner.TestStatistic(ts.test), ts.test.Reason)
+			d.p("%s, pooled over the imputed sets by %s (approximate; each set's statistic on chi-square(%d)): %s, %s.", ts.name, ts.test.Pooled, ts.test.DF, runner.TestStatistic(ts.test), mdText(ts.test.Reason))
 		case ts.test.OK && ts.test.Pooled != "":
 			d.p("%s, pooled over the imputed sets by %s (approximate; each set's statistic on chi-square(%d)): %s, %s.%s", ts.name, ts.test.Pooled, ts.test.DF, runner.TestStatistic(ts.test), numfmt.PText(ts.test.P), cautionText(ts.test))
 		case ts.test.OK:
@@ -279,7 +279,7 @@ func writePatternSplit(d *doc, or *runner.OutcomeResult) {
 		default:
 			// A test that is not OK carries no statistic (sampling
 			// weights, too few degrees of freedom, an undefined cell).
-			d.p("%s: not computed, %s.", ts.name, ts.test.Reason)
+			d.p("%s: not computed, %s.", ts.name, mdText(ts.test.Reason))
 		}
 	}
 	if t.Caution != "" {

@@ -109,7 +109,7 @@ func writeNewRows(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	}
 	d.h(3, "Predictions for new rows")
 	if nr.Error != "" {
-		d.p("Not computed: %s.", nr.Error)
+		d.p("Not computed: %s.", mdText(nr.Error))
 		return
 	}
 	neg := 0

@@ -49,11 +49,11 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			profileOutsideNote(d, or, "effects")
 		}
 		if set.Error != "" {
-			d.p("Not computed: %s.", set.Error)
+			d.p("Not computed: %s.", mdText(set.Error))
 			continue
 		}
 		for _, n := range set.Notes {
-			d.p("%s", n)
+			d.p("%s", mdText(n))
 		}
 		head := []string{"Predictor", "Change", "Category", "Effect", "Std. error", refStat(or.Chosen.Result), "p", pct(level) + " low", pct(level) + " high"}
 		if clusterRef(or.Chosen.Result) {

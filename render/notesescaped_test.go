@@ -50,13 +50,16 @@ rules:
 // ("*x*", "a_b_", "<b>z</b>", "<i>g</i>", levels "<b>L</b>", "*w*",
 // "_u_") and that meets the runner's warnings and notes: *x* missing in
 // most rows, errors clustered by 6 clusters, the level *w* in one cluster
-// (its test not computed), a sensitivity analysis imputing *x* and one
-// without the clusters. report.html shows every name as written, in the
-// rules' descriptions (the cluster column), the Pulkstenis-Robinson
-// patterns, the point of the marginal effects at the means and the rows
-// of the sensitivity analyses (the imputation models' predictors) and the
-// columns whose slopes across boundaries are not drawn, which
-// were written raw; report.md escapes each name once (no "\\").
+// (its tests not computed), a profile where log(<b>z</b> + 5) is
+// undefined (its marginal effects not computed), pairs of levels, a
+// sensitivity analysis imputing *x* and one without the clusters.
+// report.html shows every name as written in the rules' descriptions (the
+// cluster column), the Pulkstenis-Robinson patterns, the points of the
+// marginal effects and of the level pairs, the reasons something was not
+// computed, the rows of the sensitivity analyses (the imputation models'
+// predictors) and the columns whose slopes across boundaries are not
+// drawn, which were written raw; report.md escapes each name once (no
+// "\\").
 func TestRunnerTextShowsNamesLiterally(t *testing.T) {
 	dir := t.TempDir()
 	rng := rand.New(rand.NewPCG(7, 11))
@@ -91,7 +94,7 @@ func TestRunnerTextShowsNamesLiterally(t *testing.T) {
 data: {file: d.csv, cluster: "<i>g</i>"}
 outcomes: [{column: y}]
 categorical: {"a_b_": {levels: ["<b>L</b>", "*w*", "_u_"]}}
-predictors: ["*x*", "a_b_", "<b>z</b>"]
+predictors: ["*x*", "a_b_", {name: zl, column: "<b>z</b>", log: {shift: 5}}]
 models: {approaches: [cumulative], effects: [parallel, nonparallel]}
 tests: {parallel_lines: [wald, lr, brant]}
 rules:
@@ -99,7 +102,9 @@ rules:
 covariance: clustered
 inference:
   hypotheses: ["a_b_ = 0"]
-  marginal_effects: [average, means]
+  marginal_effects: [average, means, profile]
+  profile: {"<b>z</b>": -5}
+  level_pairs: {predictors: [a_b_]}
 sensitivity:
   - name: "imp_*x*_"
     why: "the *x* column is mostly missing"
@@ -129,7 +134,9 @@ sensitivity:
 		"imp_*x*_: 240 rows read",
 		"by predictive mean matching (5 donors) given y, a_b_, <b>z</b>.",
 		"dropped for missing values (*x*: 147)",
-		"Not drawn for a_b_._w_: the nonparallel fit")
+		"Not drawn for a_b_._w_: the nonparallel fit",
+		`Not computed: column "<b>z</b>": log(-5 + 5) is undefined`,
+		"every other predictor at its mean over the rows used: *x* = ")
 	if strings.Contains(md, `\\`) {
 		t.Error("report.md escapes a name twice")
 	}

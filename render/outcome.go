@@ -148,7 +148,7 @@ func writeFreeSets(d *doc, m plan.Models, or *runner.OutcomeResult) {
 	for _, s := range or.Stepwise {
 		d.p("**Stepwise selection, %s %s** (start: every predictor nonparallel; at each step the free predictor with the largest p-value at or above %g is made parallel):", s.Approach, s.Link, s.Result.Alpha)
 		if !s.Result.OK {
-			d.p("Not computed: %s.", s.Result.Reason)
+			d.p("Not computed: %s.", mdText(s.Result.Reason))
 			continue
 		}
 		if or.Imputed != nil {

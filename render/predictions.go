@@ -140,14 +140,14 @@ func writePredictionPanel(d *doc, r *runner.Result, or *runner.OutcomeResult, fi
 	res := or.Chosen.Result
 	pf, err := newProfile(or, focusName(r), fixed)
 	if err != nil {
-		d.p("Not computed: %s.", err)
+		d.p("Not computed: %s.", mdText(err.Error()))
 		return
 	}
 	pf.axis = axisTitle(r.Plan, pf.focus)
 	xs := pf.grid(tablePoints)
 	pred, err := pf.predict(res, xs)
 	if err != nil {
-		d.p("Not computed: %s.", err)
+		d.p("Not computed: %s.", mdText(err.Error()))
 		return
 	}
 	span := fmt.Sprintf("goes over %d evenly spaced values from its smallest to its largest value in the data", len(xs))
@@ -193,7 +193,7 @@ func writePredictionPanel(d *doc, r *runner.Result, or *runner.OutcomeResult, fi
 	level, z := chosenConfidence(r, or)
 	c, err := predictionChart(d, or, pf, label, level, z)
 	if err != nil {
-		d.p("The chart of these predictions was not drawn: %s.", err)
+		d.p("The chart of these predictions was not drawn: %s.", mdText(err.Error()))
 		return
 	}
 	cs := []*chart{c}
