@@ -27,7 +27,7 @@ func unusableFits(or *runner.OutcomeResult) [][2]string {
 func writeDecisionLog(d *doc, or *runner.OutcomeResult) {
 	d.h(3, "Decision log")
 	for _, f := range unusableFits(or) {
-		d.p("- %s %s", f[0], f[1])
+		d.p("- %s %s", f[0], mdText(f[1]))
 	}
 	for i, ro := range or.Rules {
 		d.p("**Rule %d, `%s`** (plan line %d). %s", i+1, ro.Rule.Kind, ro.Rule.Line, mdText(ro.Description))

@@ -279,10 +279,10 @@ func writePowerProblems(d *doc, op simulate.OutcomePower) {
 	})
 	for _, s := range op.Sizes {
 		if s.FirstFailure != "" {
-			d.p("At n = %d the first failed replicate said: %s", s.N, strings.ReplaceAll(s.FirstFailure, "\n", "; "))
+			d.p("At n = %d the first failed replicate said: %s", s.N, mdText(strings.ReplaceAll(s.FirstFailure, "\n", "; ")))
 		}
 		if s.InternalErrors > 0 && s.FirstInternal != s.FirstFailure {
-			d.p("At n = %d the first replicate that met an internal error said: %s", s.N, strings.ReplaceAll(s.FirstInternal, "\n", "; "))
+			d.p("At n = %d the first replicate that met an internal error said: %s", s.N, mdText(strings.ReplaceAll(s.FirstInternal, "\n", "; ")))
 		}
 	}
 	for _, s := range op.Sizes {

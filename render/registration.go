@@ -135,7 +135,7 @@ func writeReplacedLocks(d *doc, st *lock.Status, w lockWords) {
 	var items []string
 	for _, r := range st.Replaced {
 		if r.Error != "" {
-			items = append(items, fmt.Sprintf("%s: cannot be read (%s)", mdCode(r.File), r.Error))
+			items = append(items, fmt.Sprintf("%s: cannot be read (%s)", mdCode(r.File), mdText(r.Error)))
 			continue
 		}
 		item := fmt.Sprintf("%s, frozen at %s", mdCode(r.File), r.FrozenAt)
@@ -169,7 +169,7 @@ func writeUnusedDeviations(d *doc, st *lock.Status) {
 	}
 	var items []string
 	for _, dv := range st.Unused {
-		item := fmt.Sprintf("`%s` (plan line %d): %s", dv.Key, dv.Line, dv.Reason)
+		item := fmt.Sprintf("%s (plan line %d): %s", mdCode(dv.Key), dv.Line, mdText(dv.Reason))
 		if k := st.NearestChanged(dv); k != "" {
 			item += fmt.Sprintf(" (a misspelling of `%s`, which changed?)", k)
 		}

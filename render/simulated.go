@@ -38,7 +38,7 @@ func writeSimulatedHow(d *doc, r *runner.Result) {
 		return
 	}
 	if s.Kept != nil {
-		d.p("The plan's subset (%s) kept %d of the %d simulated rows. The stated category proportions describe the rows the subset keeps, the population the plan analyses: the cutpoints were solved, and the design's constants set, on simulated rows that meet the subset.", strings.Join(s.Subset, "; "), *s.Kept, s.N)
+		d.p("The plan's subset (%s) kept %d of the %d simulated rows. The stated category proportions describe the rows the subset keeps, the population the plan analyses: the cutpoints were solved, and the design's constants set, on simulated rows that meet the subset.", mdText(strings.Join(s.Subset, "; ")), *s.Kept, s.N)
 	}
 	if len(s.Missing) > 0 {
 		d.p("%s The run handled them as `data.missing` says, as it will handle the real data's missing values.", simulatedMissingText(s.Missing))

@@ -222,7 +222,7 @@ func constrainedTermTests(or *runner.OutcomeResult) string {
 		if !slices.ContainsFunc(tt.Columns, func(c string) bool { return constrained[c] }) || !tt.Wald.OK || !tt.LR.OK {
 			continue
 		}
-		parts = append(parts, fmt.Sprintf("the tests of %s give Wald %s and likelihood ratio %s", tt.Term, runner.TestStatistic(tt.Wald), runner.TestStatistic(tt.LR)))
+		parts = append(parts, fmt.Sprintf("the tests of %s give Wald %s and likelihood ratio %s", mdText(tt.Term), runner.TestStatistic(tt.Wald), runner.TestStatistic(tt.LR)))
 	}
 	return strings.Join(parts, "; ")
 }
