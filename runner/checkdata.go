@@ -45,6 +45,9 @@ func CheckData(p *plan.Plan) ([]string, error) {
 		if w := a.StabilityLevels(r, used); w != "" {
 			warnings = append(warnings, fmt.Sprintf("outcome %s: %s", r.Outcome, w))
 		}
+		if w := a.FewRowLevels(r, ld.Design, used, nil); w != "" {
+			warnings = append(warnings, fmt.Sprintf("outcome %s: %s", r.Outcome, w))
+		}
 		if w := a.SparseWithinUnmet(&OutcomeResult{Design: ld.Design, dataOptions: r.Options}, used); w != "" {
 			warnings = append(warnings, fmt.Sprintf("outcome %s: %s", r.Outcome, w))
 		}
@@ -175,6 +178,9 @@ func FewClustersWarnings(res *Result) []string {
 			out = append(out, fmt.Sprintf("outcome %s: %s", an.Outcomes[i].Outcome, w))
 		}
 		if w := an.StabilityLevels(an.Outcomes[i], or.Data); w != "" && or.Stability != nil {
+			out = append(out, fmt.Sprintf("outcome %s: %s", an.Outcomes[i].Outcome, w))
+		}
+		if w := an.FewRowLevels(an.Outcomes[i], or.Design, or.Data, or.Fits); w != "" {
 			out = append(out, fmt.Sprintf("outcome %s: %s", an.Outcomes[i].Outcome, w))
 		}
 		if w := an.SparseWithinUnmet(or, or.Data); w != "" {

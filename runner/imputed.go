@@ -808,6 +808,9 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 	if err := decideImputed(an, r, or, sets, opt); err != nil {
 		return nil, err
 	}
+	if w := an.FewRowLevels(r, dz, &ds, or.Fits); w != "" {
+		or.Notes = append(or.Notes, w)
+	}
 	runPooledFitStats(an, or)
 	runPooledGoodnessOfFit(an, or)
 	if !opt.NoTermTests {

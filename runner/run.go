@@ -142,6 +142,9 @@ func runOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash 
 	if err := decideOutcome(an, r, or, opt, remote); err != nil {
 		return nil, err
 	}
+	if w := an.FewRowLevels(r, dz, ds, or.Fits); w != "" {
+		or.Notes = append(or.Notes, w)
+	}
 
 	// 5. Overall fit of the candidates and goodness of fit of the chosen
 	// model.

@@ -463,6 +463,58 @@ func mistakeItems(dir string) []badInput {
 					t.Errorf("a complete column is warned of:\n%s%s", errs, e)
 				}
 			}},
+		{id: "W35", name: "a level of a categorical predictor, or a combination of levels of an interaction, with fewer than 10 rows used", args: []string{"check"}, code: 0,
+			plan: edit("  file: d.csv\n", "  file: W35.csv\ncategorical:\n  g: {levels: [m, n, rare]}\n  k: {levels: [lo, hi]}\n", "predictors: [a, b]\n", "predictors: [a, g, k, {interact: [g, k]}]\n"),
+			setup: func(t *testing.T, dir, id string) {
+				// g: rare in 6 rows (two of every 40: 2 with k hi, 4 lo), m
+				// and n in 57 each; k: hi in every third row but only
+				// twice among the rows of n (rows 3 and 15, in categories
+				// 3 and 1).
+				w35Data(t, dir, id+".csv", 15)
+			},
+			check: func(t *testing.T, dir, out, errs string) {
+				plan := filepath.Join(dir, "W35.yaml")
+				want := "warning: " + plan + `: outcome y: Few rows at some levels of categorical predictors (fewer than 10 of the 120 rows used): g = rare (6 rows), g "n" with k "hi" (2 rows, in term "g&k"). The coefficients, odds ratios, marginal effects and Wald tests of such a level or combination of levels rest on those rows alone, and their standard errors, p-values and intervals on a large-sample (normal) approximation that so few support poorly: read them as rough. Merge such a level with a neighbouring one in the data (one code for both), leave the term out, or, if the level is meant as it is, keep it and interpret its estimates with care` + "\n"
+				if !strings.Contains(errs, want) {
+					t.Errorf("check: want %q in\n%s", want, errs)
+				}
+				o := filepath.Join(dir, "W35-out")
+				_, e, code := runCLI("run", plan, "--out", o, "--quiet")
+				if code != 0 || !strings.Contains(e, want) {
+					t.Errorf("run: exit %d, want %q in\n%s", code, want, e)
+				}
+				note := `Few rows at some levels of categorical predictors (fewer than 10 of the 120 rows used): g = rare (6 rows), g \"n\" with k \"hi\" (2 rows`
+				if b, err := os.ReadFile(filepath.Join(o, "decisions.json")); err != nil || !strings.Contains(string(b), note) {
+					t.Errorf("decisions.json: want %q among the notes (%v)", note, err)
+				}
+				if b, err := os.ReadFile(filepath.Join(o, "report.md")); err != nil || !strings.Contains(string(b), `Few rows at some levels of categorical predictors (fewer than 10 of the 120 rows used): g = rare (6 rows)`) {
+					t.Errorf("report.md: no note on level rare (%v)", err)
+				}
+				// The cells of rare (2 and 4 rows) are not named again.
+				if strings.Contains(errs, `g "rare"`) {
+					t.Errorf("a cell of a level named already is named:\n%s", errs)
+				}
+				// With the rows of n with k hi both in category 3 (rows 3
+				// and 9), every candidate is separated along g.n&k.hi and
+				// its verdict says so: run names rare alone, check (which
+				// fits nothing) both.
+				w35Data(t, dir, "W35sep.csv", 9)
+				sep := filepath.Join(dir, "W35sep.yaml")
+				b, err := os.ReadFile(plan)
+				if err != nil {
+					t.Fatal(err)
+				}
+				if err := os.WriteFile(sep, []byte(strings.Replace(string(b), "W35.csv", "W35sep.csv", 1)), 0o644); err != nil {
+					t.Fatal(err)
+				}
+				if _, e, code := runCLI("check", sep); code != 0 || !strings.Contains(e, `g = rare (6 rows), g "n" with k "hi" (2 rows, in term "g&k")`) {
+					t.Errorf("check, separated cell: exit %d\n%s", code, e)
+				}
+				_, e, _ = runCLI("run", sep, "--out", filepath.Join(dir, "W35sep-out"), "--quiet")
+				if !strings.Contains(e, `(fewer than 10 of the 120 rows used): g = rare (6 rows). The coefficients`) {
+					t.Errorf("run, separated cell: want rare alone in\n%s", e)
+				}
+			}},
 		{id: "W32", name: "reject_if_sparse counting categories within the values of a numeric column of many values", args: []string{"check"}, code: 0,
 			plan: edit("  - reject_unconverged: true\n", "  - reject_unconverged: true\n  - reject_if_sparse: {smallest_category: 5, within: a}\n"),
 			check: func(t *testing.T, dir, out, errs string) {
@@ -530,4 +582,22 @@ func mixedParts(t *testing.T, dir, id string) {
 	}
 	os.WriteFile(filepath.Join(dir, id+"-p1.csv"), []byte(strings.Join(lines[:61], "\n")+"\n"), 0o644)
 	os.WriteFile(filepath.Join(dir, id+"-p2.csv"), []byte(strings.Join(semi, "\n")+"\n"), 0o644)
+}
+
+// w35Data writes d.csv with columns g and k for catalogue item W35: g
+// rare in rows i%40 < 2, else m (even rows) or n (odd); k hi in every
+// third row, among the rows of n only in rows 3 and nHi.
+func w35Data(t *testing.T, dir, name string, nHi int) {
+	t.Helper()
+	withColumns(t, dir, name, "g,k", func(i int, f []string) string {
+		g := "mn"[i%2 : i%2+1]
+		if i%40 < 2 {
+			g = "rare"
+		}
+		k := "lo"
+		if i%3 == 0 && (g != "n" || i == 3 || i == nHi) {
+			k = "hi"
+		}
+		return g + "," + k
+	})
 }
