@@ -488,6 +488,10 @@ func (a *Analysis) Observed(r Reading, ds *data.Dataset) error {
 	if miss := ds.N - observedOutcomes(ds); miss > 0 {
 		rows = fmt.Sprintf("the %d rows used whose %s is observed (the other %d of the %d rows used miss it, to be imputed)", ds.N-miss, ds.Outcome, miss, ds.N)
 	}
+	if why := ds.FewRowsCause(); why != "" {
+		return fmt.Errorf("%s: %s: category %q is declared but never observed in %s: %s. If these are the rows meant, remove it from %s or merge it with a neighbour",
+			a.Source, r.Key, ds.Unobserved[0], rows, why, r.CategoriesKey)
+	}
 	return fmt.Errorf("%s: %s: category %q is declared but never observed in %s; remove it from %s or merge it with a neighbour",
 		a.Source, r.Key, ds.Unobserved[0], rows, r.CategoriesKey)
 }

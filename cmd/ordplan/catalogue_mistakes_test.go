@@ -462,6 +462,31 @@ func mistakeItems(dir string) []badInput {
 				if strings.Contains(errs+e, `Predictor column "a"`) || strings.Contains(errs+e, `Predictor column "b"`) {
 					t.Errorf("a complete column is warned of:\n%s%s", errs, e)
 				}
+				// s observed in 2 rows, neither in category 3: the refusal of
+				// the unobserved category, which comes before the warning,
+				// says why so few rows remain.
+				seen := 0
+				withColumns(t, dir, "W34few.csv", "s", func(i int, f []string) string {
+					if f[0] != "3" && seen < 2 {
+						seen++
+						return "1.5"
+					}
+					return ""
+				})
+				few := filepath.Join(dir, "W34few.yaml")
+				if err := os.WriteFile(few, []byte(strings.Replace(strings.Replace(string(b), "W34.csv", "W34few.csv", 1), "  - column: y\n", "  - column: y\n    categories: [1, 2, 3]\n", 1)), 0o644); err != nil {
+					t.Fatal(err)
+				}
+				want = few + `: outcomes: y: category "3" is declared but never observed in the 2 rows used: 118 of 120 rows dropped for missing values (s: 118). Predictor column "s" is observed in 2 of the 120 rows (118 missing, 98.3%), fewer than half: every row missing it, 118, is dropped (complete cases), so at most 2 rows remain for the fits. Check the column (the one meant, its missing-value markers); if it is this sparse, leave it out of the predictors, or analyse the rows that have it (subset). If these are the rows meant, remove it from categories or merge it with a neighbour`
+				for _, cmd := range []string{"check", "run"} {
+					args := []string{cmd, few}
+					if cmd == "run" {
+						args = append(args, "--out", filepath.Join(dir, "W34few-out"))
+					}
+					if _, e, code := runCLI(args...); code != 1 || !strings.Contains(e, want) {
+						t.Errorf("%s, 2 rows left: exit %d, want %q in\n%s", cmd, code, want, e)
+					}
+				}
 			}},
 		{id: "W35", name: "a level of a categorical predictor, or a combination of levels of an interaction, with fewer than 10 rows used", args: []string{"check"}, code: 0,
 			plan: edit("  file: d.csv\n", "  file: W35.csv\ncategorical:\n  g: {levels: [m, n, rare]}\n  k: {levels: [lo, hi]}\n", "predictors: [a, b]\n", "predictors: [a, g, k, {interact: [g, k]}]\n"),

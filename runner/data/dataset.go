@@ -168,6 +168,23 @@ func (d *Dataset) DropSummary() string {
 		d.RowsDropped, d.RowsRead, why, dropList(d.Dropped), d.UndecidedSummary())
 }
 
+// FewRowsCause says why few rows remain, for a refusal that counts the
+// rows used, when more rows were dropped than kept: the rows dropped and
+// what for, by column (DropSummary), then the notes of the predictor
+// columns observed in fewer than half of the rows (MostlyMissing, W34),
+// which a refusal would otherwise keep from being printed. "" when fewer
+// rows were dropped than kept.
+func (d *Dataset) FewRowsCause() string {
+	if d.RowsDropped <= d.N {
+		return ""
+	}
+	s := d.DropSummary()
+	if len(d.MostlyMissing) > 0 {
+		s += ". " + strings.Join(d.MostlyMissing, ". ")
+	}
+	return s
+}
+
 // DropReasons says what the rows counted in dc were dropped for, naming
 // only the reasons some row was: "the subset", "missing values", "zero
 // weight", in that order ("missing values or zero weight"; "zero weight"
