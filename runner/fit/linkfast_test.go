@@ -41,11 +41,10 @@ func mathLower(l Link, z float64) tail {
 		t := mathUpper(Cloglog, -z)
 		return tail{t.v, -t.d1, t.d2}
 	case Cauchy:
-		F := cauchyCDF(z)
-		f := 1 / (math.Pi * (1 + z*z))
-		r := f / F
-		fp := -2 * z / (1 + z*z) * f
-		return tail{math.Log(F), r, fp/F - r*r}
+		// Only the value's logarithm changed: the derivatives are lower's.
+		t := Cauchy.lower(z)
+		t.v = math.Log(cauchyCDF(z))
+		return t
 	}
 	panic("unknown link")
 }
