@@ -141,3 +141,45 @@ sensitivity:
 		t.Error("report.md escapes a name twice")
 	}
 }
+
+// The captions of the sensitivity analyses' tables name the outcome as
+// code: an outcome named *y* was shown in italics there.
+func TestSensitivityCaptionsShowOutcomeLiterally(t *testing.T) {
+	dir := t.TempDir()
+	rng := rand.New(rand.NewPCG(3, 5))
+	var b strings.Builder
+	b.WriteString("*y*,x\n")
+	for range 200 {
+		x, u := rng.NormFloat64(), rng.Float64()
+		y := 1
+		for _, cut := range []float64{-1, 0.5} {
+			if math.Log(u/(1-u))+0.8*x > cut {
+				y++
+			}
+		}
+		fmt.Fprintf(&b, "%d,%.4f\n", y, x)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	src := `version: 1
+data: {file: d.csv}
+outcomes: [{column: "*y*"}]
+predictors: [x]
+models: {approaches: [cumulative], effects: [parallel, nonparallel], links: [logit]}
+rules:
+  - choose: {by: aic}
+sensitivity:
+  - name: sand
+    why: robust errors
+    change: {covariance: sandwich}
+`
+	files := renderSource(t, dir, src, 1)
+	md, page := string(files["report.md"]), string(files["report.html"])
+	hasAll(t, "report.md", md,
+		"The model the rules chose under each analysis, `*y*`",
+		"under each analysis, `*y*`\n")
+	if strings.Contains(page, "<em>y</em>") {
+		t.Error("report.html shows the outcome *y* in italics")
+	}
+}

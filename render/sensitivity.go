@@ -179,7 +179,7 @@ func writeSensitivityOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult,
 		}
 		rows = append(rows, []string{sr.Sensitivity.Name, fmt.Sprint(sor.AsRead().N), chosen, same})
 	}
-	d.captioned("The model the rules chose under each analysis, "+or.Outcome.Column).table([]string{"Analysis", "Rows used", "Model chosen", "The primary analysis's choice"}, rows)
+	d.captioned("The model the rules chose under each analysis, "+mdCode(or.Outcome.Column)).table([]string{"Analysis", "Rows used", "Model chosen", "The primary analysis's choice"}, rows)
 	var how []string
 	for _, sr := range r.Sensitivity {
 		if h := sensitivityRows(sr, sr.Outcome(or.Outcome.Column)); h != "" {
@@ -237,7 +237,7 @@ func writeSensitivityOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult,
 		}
 	}
 	d.p("The primary analysis's chosen model, %s, fitted under each sensitivity analysis (whatever its rules chose): its effects with %s intervals, as in the primary analysis's table of estimates; the boundaries' tau are left out. %s", or.Chosen.ID, pct(level), sensitivityReferenceWords)
-	d.captioned("Estimates of "+or.Chosen.ID+" under each analysis, "+or.Outcome.Column).table(
+	d.captioned("Estimates of "+or.Chosen.ID+" under each analysis, "+mdCode(or.Outcome.Column)).table(
 		[]string{"Parameter", "Analysis", "Estimate", "Std. error", pct(level) + " low", pct(level) + " high", "Reference", "df"}, est)
 	for _, sr := range r.Sensitivity {
 		if n := notEstimableUnder(sr, or); n != "" {
