@@ -81,7 +81,12 @@ func (a *Analysis) FewRowLevels(r Reading, dz *design.Design, ds *data.Dataset, 
 		}
 		if c.ref {
 			s += ", the reference level"
-			refs = append(refs, "categorical."+strings.SplitN(c.label, " = ", 2)[0]+".reference")
+			name := strings.SplitN(c.label, " = ", 2)[0]
+			if a.Plan {
+				refs = append(refs, "categorical."+name+".reference")
+			} else {
+				refs = append(refs, "--predictors "+name+"|ref=LEVEL")
+			}
 		}
 		named = append(named, s+")")
 	}

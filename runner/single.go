@@ -76,13 +76,24 @@ type SingleChecks struct {
 // pseudo-R2, the Lipsitz test and, with categorical predictors, the
 // Pulkstenis-Robinson tests (as ordplan run computes them for the chosen
 // model).
-func FitOneChecked(s SingleFit) (*fit.Result, *data.Dataset, *SingleChecks, error) {
+//
+// Its warnings are those of the data the fit used, as check and run give
+// them: the levels of categorical predictors with few rows
+// (Analysis.FewRowLevels; one whose column the fit's separation names is
+// left out, its message saying why).
+func FitOneChecked(s SingleFit) (*fit.Result, *data.Dataset, *SingleChecks, []string, error) {
 	res, ld, a, err := fitOne(s)
 	if ld == nil {
-		return res, nil, nil, err
+		return res, nil, nil, nil, err
+	}
+	var warnings []string
+	if err == nil && res != nil {
+		if w := a.FewRowLevels(a.Outcomes[0], ld.Design, ld.Data, []*FitEntry{{Result: res}}); w != "" {
+			warnings = append(warnings, w)
+		}
 	}
 	if err != nil || !res.OK() {
-		return res, ld.Data, nil, err
+		return res, ld.Data, nil, warnings, err
 	}
 	// The comparison with the thresholds-only model (its spread of the
 	// linear predictor a serial pass) beside the goodness of fit; both
@@ -98,7 +109,7 @@ func FitOneChecked(s SingleFit) (*fit.Result, *data.Dataset, *SingleChecks, erro
 	c.Lipsitz, c.PatternSplit = goodnessOfFit(ld, res, a.Fit, a.Errors.Sampling)
 	<-done
 	c.Overall = OverallRecord{Model: res.Name, Null: fit.ModelID(res.Model.ComparisonName(), "thresholds-only", res.Model.Link), Overall: o}
-	return res, ld.Data, c, nil
+	return res, ld.Data, c, warnings, nil
 }
 
 // fitOne fits the model of s, returning what it loaded (nil when the

@@ -41,7 +41,7 @@ func TestFitOneCheckedSampling(t *testing.T) {
 		cov      fit.Covariance
 	}{{false, fit.Observed}, {true, fit.Sandwich}} { // sampling weights call for a sandwich
 		sampling := w.sampling
-		res, _, checks, err := FitOneChecked(SingleFit{DataFile: path, Outcome: "y", Predictors: []string{"x"}, Weights: "w", Sampling: sampling,
+		res, _, checks, _, err := FitOneChecked(SingleFit{DataFile: path, Outcome: "y", Predictors: []string{"x"}, Weights: "w", Sampling: sampling,
 			Approach: fit.Cumulative, Link: fit.Logit, Covariance: w.cov, Workers: 1})
 		if err != nil || !res.OK() || checks == nil {
 			t.Fatalf("sampling %v: %v %v", sampling, err, res)

@@ -515,6 +515,17 @@ func mistakeItems(dir string) []badInput {
 				if b, err := os.ReadFile(filepath.Join(o, "report.md")); err != nil || !strings.Contains(string(b), `Few rows at some levels of categorical predictors (fewer than 10 of the 120 rows used): g = rare (6 rows)`) {
 					t.Errorf("report.md: no note on level rare (%v)", err)
 				}
+				// ordplan fit gives the same warning on standard error, and a
+				// reference level among them is to be chosen by |ref=.
+				fitArgs := []string{"fit", "--data", filepath.Join(dir, "W35.csv"), "--outcome", "y", "--predictors", "a,g|levels=m/n/rare,k|levels=lo/hi,g&k"}
+				fitWant := "warning: " + strings.SplitN(want, ": outcome y: ", 2)[1]
+				if _, e, code := runCLI(fitArgs...); code != 0 || !strings.Contains(e, fitWant) {
+					t.Errorf("fit: exit %d, want %q in\n%s", code, fitWant, e)
+				}
+				fitArgs[len(fitArgs)-1] = "a,g|levels=rare/m/n"
+				if _, e, code := runCLI(fitArgs...); code != 0 || !strings.Contains(e, "g = rare (6 rows, the reference level)") || !strings.HasSuffix(e, "make a larger level the reference (--predictors g|ref=LEVEL)\n") {
+					t.Errorf("fit, rare the reference: exit %d\n%s", code, e)
+				}
 				// The cells of rare (2 and 4 rows) are not named again.
 				if strings.Contains(errs, `g "rare"`) {
 					t.Errorf("a cell of a level named already is named:\n%s", errs)

@@ -337,9 +337,12 @@ func cmdFit(args []string, stdout, stderr io.Writer) int {
 	// collecting garbage more often costs little and keeps the peak memory
 	// near what is in use (within 3 times the design matrix at n = 1e6).
 	defer debug.SetGCPercent(debug.SetGCPercent(fitGCPercent))
-	res, ds, checks, err := runner.FitOneChecked(s)
+	res, ds, checks, warnings, err := runner.FitOneChecked(s)
 	if err != nil {
 		return fail(stderr, err)
+	}
+	for _, w := range warnings {
+		fmt.Fprintf(stderr, "warning: %s\n", w)
 	}
 	base, err := f.baselineOf(res)
 	if err != nil {
