@@ -40,7 +40,7 @@ func TestFewRowLevelsEdge(t *testing.T) {
 		t.Fatal(err)
 	}
 	ds := &data.Dataset{Predictors: []string{"g", "h"}, K: 2, N: n, X: raw}
-	a := &Analysis{}
+	a := &Analysis{Plan: true} // the advice names the plan key
 	r := Reading{Design: spec}
 	got := a.FewRowLevels(r, dz, ds, nil)
 	for _, want := range []string{
