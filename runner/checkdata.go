@@ -31,7 +31,7 @@ func CheckData(p *plan.Plan) ([]string, error) {
 			return nil, err
 		}
 		warnings = append(warnings, unlinkedWarnings(r.Outcome, unlinked)...)
-		if err := a.CheckDesign(r, ld.Design, ld.FitData); err != nil {
+		if err := a.CheckDesign(r, ld.Design, ld.Data, ld.FitData); err != nil {
 			return nil, err
 		}
 		warnings = append(warnings, pointWarnings(r.Outcome, ld.Data)...)

@@ -6,6 +6,7 @@ import (
 	"slices"
 	"strings"
 
+	"ordplan/runner/data"
 	"ordplan/runner/design"
 	"ordplan/runner/fit"
 )
@@ -142,9 +143,17 @@ func termPlaceOf(ts *design.TermSpec, msg string) (place, out string, ok bool) {
 // found by the rank check or a fit, as the command reports it: a
 // collinearity in the words of the terms (collinearTerms), at the plan's
 // place of the term for a plan; what names the data beyond the outcome
-// ("imputed set 2"; "" for none).
-func (a *Analysis) designError(r Reading, dz *design.Design, err error, what string) error {
+// ("imputed set 2"; "" for none). ds is the data the design was built on
+// (nil when the refusal is not about one data set): when more of its rows
+// were dropped than kept, a constant or collinear term ends with why so
+// few rows remain (Dataset.FewRowsCause), the likely cause.
+func (a *Analysis) designError(r Reading, dz *design.Design, ds *data.Dataset, err error, what string) error {
 	place, msg, ok := r.collinearTerms(err, dz, a.Source)
+	if ok && ds != nil {
+		if why := ds.FewRowsCause(); why != "" {
+			msg += fmt.Sprintf(". Only %d of the %d rows read are used: %s", ds.N, ds.RowsRead, why)
+		}
+	}
 	if what != "" {
 		what = ", " + what
 	}

@@ -127,7 +127,7 @@ func (a *Analysis) PartsRank(whole fit.Whole) error {
 	if derr != nil || !slices.Equal(dz.Columns, whole.Predictors) {
 		dz = nil
 	}
-	return a.designError(r, dz, err, "")
+	return a.designError(r, dz, nil, err, "")
 }
 
 // PartsCollinearity checks a fit over parts for near-collinearity of its

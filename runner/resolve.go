@@ -689,10 +689,11 @@ func (a *Analysis) fewClusters(r Reading, ds *data.Dataset) string {
 }
 
 // CheckDesign checks an outcome's fit input before any model is fitted
-// (categories, weights, constant or collinear predictors).
-func (a *Analysis) CheckDesign(r Reading, dz *design.Design, d *fit.Data) error {
+// (categories, weights, constant or collinear predictors), built on ds
+// (nil for a resample, whose primary data were checked).
+func (a *Analysis) CheckDesign(r Reading, dz *design.Design, ds *data.Dataset, d *fit.Data) error {
 	if err := fit.CheckDesign(d); err != nil {
-		return a.designError(r, dz, err, "")
+		return a.designError(r, dz, ds, err, "")
 	}
 	return a.checkGridLevels(r, dz)
 }

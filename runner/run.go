@@ -132,7 +132,7 @@ func runOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options, dataHash 
 	if w := an.StabilityLevels(r, ds); w != "" && !opt.NoStability {
 		or.Notes = append(or.Notes, w)
 	}
-	if err := an.CheckDesign(r, dz, or.FitData); err != nil {
+	if err := an.CheckDesign(r, dz, ds, or.FitData); err != nil {
 		return nil, err
 	}
 	remote := &remoteData{outcome: oc.Column, dataFile: an.DataFile, dataHash: hash, dataOptions: r.Options}

@@ -552,7 +552,7 @@ func decideDrawn(an *Analysis, rd Reading, primary *OutcomeResult, ds *data.Data
 		return nil, err.Error()
 	}
 	or = &OutcomeResult{Outcome: primary.Outcome, Data: ds, FitData: fd, Design: primary.Design, Terms: primary.Terms, dataOptions: primary.dataOptions}
-	if err := an.CheckDesign(rd, primary.Design, fd); err != nil {
+	if err := an.CheckDesign(rd, primary.Design, nil, fd); err != nil {
 		return nil, err.Error()
 	}
 	if err := decideOutcome(an, rd, or, Options{Workers: 1}, nil); err != nil {

@@ -1898,11 +1898,13 @@ func catalogue(dir string) (items []badInput) {
 				}
 			}},
 		{id: "M1", name: "constant predictor", args: fitArgs(d("d.csv"), "--predictors", "a,c"), code: 1,
-			want:  []string{`d.csv: --predictors item 2: term "c" is constant (every row used has 5): it cannot be estimated alongside the cutpoints; remove it`},
-			check: overQueueParts("a,c", `ordplan: parts dpart1.csv, dpart2.csv: --predictors item 2: term "c" is constant (every row used has 5): it cannot be estimated alongside the cutpoints; remove it`)},
+			want: []string{`d.csv: --predictors item 2: term "c" is constant (every row used has 5): it cannot be estimated alongside the cutpoints; remove it`},
+			check: afterRowLoss(overQueueParts("a,c", `ordplan: parts dpart1.csv, dpart2.csv: --predictors item 2: term "c" is constant (every row used has 5): it cannot be estimated alongside the cutpoints; remove it`),
+				"a,k,z", `term "k" is constant (every row used has 1): it cannot be estimated alongside the cutpoints; remove it. Only 40 of the 120 rows read are used: 80 of 120 rows dropped for missing values (z: 80). Predictor column "z" is observed in 40 of the 120 rows`)},
 		{id: "M2", name: "perfectly collinear predictors", args: fitArgs(d("d.csv"), "--predictors", "a,b,d"), code: 1,
-			want:  []string{`d.csv: --predictors item 3: term "d" is collinear with terms "a", "b" and the constant, so their effects cannot be told apart; remove one of the terms`},
-			check: overQueueParts("a,b,d", `ordplan: parts dpart1.csv, dpart2.csv: --predictors item 3: term "d" is collinear with terms "a", "b" and the constant, so their effects cannot be told apart; remove one of the terms`)},
+			want: []string{`d.csv: --predictors item 3: term "d" is collinear with terms "a", "b" and the constant, so their effects cannot be told apart; remove one of the terms`},
+			check: afterRowLoss(overQueueParts("a,b,d", `ordplan: parts dpart1.csv, dpart2.csv: --predictors item 3: term "d" is collinear with terms "a", "b" and the constant, so their effects cannot be told apart; remove one of the terms`),
+				"a,u,v,z", `term "v" is collinear with term "u" and the constant, so their effects cannot be told apart; remove one of the terms. Only 40 of the 120 rows read are used: 80 of 120 rows dropped for missing values (z: 80)`)},
 		{id: "M16", name: "collinear terms in a plan", args: []string{"check"}, plan: edit("[a, b]", "[a, b, d]"), code: 1,
 			want: []string{`M16.yaml:6:20: predictors[2]: term "d" is collinear with terms "a" (`, `M16.yaml:6:14), "b" (`, `M16.yaml:6:17) and the constant, so their effects cannot be told apart; remove one of the terms (data d.csv, outcome "y")`}},
 		{id: "M17", name: "a categorical term whose levels merge another's", args: fitArgs(d("levels.csv"), "--predictors", "a,site|levels=n/e/s/w,region|levels=ne/sw"), code: 1,
@@ -2547,6 +2549,30 @@ func overQueueParts(preds, want string) func(t *testing.T, dir, out, errs string
 		_, e, code := runCLI("fit", "--parts", p1+","+p2, "--outcome", "y", "--predictors", preds, "--queue", "nats://127.0.0.1:1", "--queue-secret-file", "queue.key")
 		if code != 1 || strings.TrimSpace(e) != want {
 			t.Errorf("over parts held by queue workers: exit %d:\n%s\nwant exit 1:\n%s", code, e, want)
+		}
+	}
+}
+
+// afterRowLoss is check followed by a fit to loss.csv, d.csv with
+// columns z (observed in every third row only), k (1 in those rows,
+// varying in the others) and u and v (v = u + 1 in those rows, not in the
+// others), on predictors preds: with more rows dropped than kept, the
+// refusal of a constant or collinear term says why so few rows remain
+// (Dataset.FewRowsCause), want among its words.
+func afterRowLoss(check func(t *testing.T, dir, out, errs string), preds, want string) func(t *testing.T, dir, out, errs string) {
+	return func(t *testing.T, dir, out, errs string) {
+		t.Helper()
+		check(t, dir, out, errs)
+		withColumns(t, dir, "loss.csv", "z,k,u,v", func(i int, _ []string) string {
+			u := i % 7
+			if i%3 == 0 {
+				return fmt.Sprintf("%d,1,%d,%d", i%5, u, u+1)
+			}
+			return fmt.Sprintf(",%d,%d,%d", i%2, u, i%5)
+		})
+		_, e, code := runCLI(fitArgs(filepath.Join(dir, "loss.csv"), "--predictors", preds)...)
+		if code != 1 || !strings.Contains(e, want) {
+			t.Errorf("after heavy row loss: exit %d:\n%s\nwant exit 1 and %q", code, e, want)
 		}
 	}
 }
