@@ -255,7 +255,8 @@ func boundaryChart(d *doc, pred, shown, holds string, cats []string, est, se, cr
 		shown = pred
 	}
 	fr := d.frame(chartFrame{title: shown, subtitle: sub, height: 340 + int(labels.extent-labels.upright(10)),
-		grid: opts.Grid{Left: leftFor(labels, "4%"), Right: "6%", Top: "60", Bottom: "60"}, legend: legend})
+		grid: opts.Grid{Left: leftFor(labels, "4%"), Right: "6%", Top: "60", Bottom: "60"}, legend: legend,
+		lineOnly: map[string]bool{band: true, "parallel": true}})
 	l := charts.NewLine()
 	l.SetGlobalOptions(append(fr.opts(),
 		charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: "boundary", NameLocation: "middle", NameGap: int(labels.extent) + 7,

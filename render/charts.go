@@ -61,6 +61,41 @@ type chartFrame struct {
 	grid                opts.Grid
 	legend              []string // the legend's entries, at the bottom unless legendRight
 	legendRight         bool     // the legend stands right of the plot, one entry per line
+	// lineOnly are the legend entries of series drawn without points: their
+	// legend icon is the line alone (dashed if the line is), without the
+	// point the library puts on a line's icon. The legend then lists the
+	// entries of legend, which must name every series.
+	lineOnly map[string]bool
+}
+
+// legendItem is a legend entry whose point is hidden (chartFrame.lineOnly).
+type legendItem struct {
+	Name      string `json:"name"`
+	ItemStyle struct {
+		Opacity float64 `json:"opacity"`
+	} `json:"itemStyle"`
+}
+
+// legendData is the legend's entries when some are lines alone (nil:
+// the library takes the series' names).
+func (fr *chartFrame) legendData() any {
+	if len(fr.lineOnly) == 0 {
+		return nil
+	}
+	var out []any
+	seen := map[string]bool{}
+	for _, n := range fr.legend {
+		if seen[n] {
+			continue
+		}
+		seen[n] = true
+		if fr.lineOnly[n] {
+			out = append(out, legendItem{Name: n}) // opacity 0: the point is not drawn
+		} else {
+			out = append(out, n)
+		}
+	}
+	return out
 }
 
 // legendWidth is the most a legend entry may take before an ellipsis
@@ -94,7 +129,7 @@ func (fr *chartFrame) opts() []charts.GlobalOpts {
 		charts.WithTitleOpts(opts.Title{Title: title, Subtitle: sub, Left: "center",
 			TitleStyle: &opts.TextStyle{FontSize: titleSize, LineHeight: titleLine}, SubtitleStyle: &opts.TextStyle{FontSize: subtitleSize, LineHeight: subtitleLine}}),
 		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "axis"}),
-		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Bottom: "0"}),
+		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Bottom: "0", Data: fr.legendData()}),
 		charts.WithGridOpts(grid),
 	}
 }

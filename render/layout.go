@@ -176,10 +176,12 @@ const (
 	legendTextMax  = 200         // pixels an entry of a legend at the bottom may take
 	legendRightMax = 120         // pixels an entry of a legend beside the plot may take
 	legendIconRoom = 25 + 5 + 10 // the icon, its gap to the text, the gap to the next entry
+	yNameRoom      = 20          // pixels between the subtitle and the plot for the y axis's name
 )
 
 // chartTitle wraps a chart's title and subtitle to the chart's text
-// width; extra is how many pixels more than one line each they take.
+// width; extra is how many pixels more than one line each they take,
+// and the room for the y axis's name.
 func chartTitle(mark, title, subtitle string) (t, s string, extra int) {
 	tl := wrap(title, chartTextWidth, titleLines, widthAt(1.12*titleSize)) // bold
 	if mark != "" {
@@ -191,9 +193,9 @@ func chartTitle(mark, title, subtitle string) (t, s string, extra int) {
 		extra += (len(sl) - 1) * subtitleLine
 		s = strings.Join(sl, "\n")
 	}
-	if extra > 0 {
-		extra += 12 // long lines reach over the y axis's name: move it down clear of them
-	}
+	// The y axis's name stands above the plot, below the subtitle, which
+	// may reach over it at phone width: the plot moves down clear of it.
+	extra += yNameRoom
 	return strings.Join(tl, "\n"), s, extra
 }
 
@@ -278,28 +280,38 @@ func (l categoryLabels) axisLabel(size int) *opts.AxisLabel {
 
 // fitting is the chart visitor that adds what go-echarts has no field
 // for: a legend whose entries longer than width pixels are shortened with
-// an ellipsis and shown whole in a tooltip, and a margin beyond the data
-// on y axes whose extent comes from the data (paddedAxis).
+// an ellipsis and shown whole in a tooltip, a margin beyond the data on
+// y axes whose extent comes from the data (scale: the library widens it
+// by a share at each end before rounding it to its ticks, so that no
+// point sits on the frame), and the style of a y axis's name.
 type fitting struct {
 	charts.BaseConfigurationVisitor
 	width int
 }
 
-// paddedAxis is a value y axis whose extent comes from the data (scale):
-// the library widens it by a share at each end before rounding it to its
-// ticks, so that no point sits on the frame.
-type paddedAxis struct {
-	opts.YAxis
-	BoundaryGap [2]string `json:"boundaryGap"`
+// nameStyle is the style of a y axis's name above the plot: it starts at
+// the axis and runs right over the plot, so that a long name is not cut
+// at the chart's left edge (centred on the axis, half of it would be).
+type nameStyle struct {
+	Align string `json:"align"`
 }
 
 func (f fitting) VisitYAxis(axes []opts.YAxis) any {
 	out := make([]any, len(axes))
 	for i, a := range axes {
-		out[i] = a
-		if a.Scale != nil && bool(*a.Scale) {
-			out[i] = paddedAxis{YAxis: a, BoundaryGap: [2]string{"5%", "5%"}}
+		var y struct {
+			opts.YAxis
+			BoundaryGap   *[2]string `json:"boundaryGap,omitempty"`
+			NameTextStyle *nameStyle `json:"nameTextStyle,omitempty"`
 		}
+		y.YAxis = a
+		if a.Scale != nil && bool(*a.Scale) {
+			y.BoundaryGap = &[2]string{"5%", "5%"}
+		}
+		if a.Name != "" && (a.NameLocation == "" || a.NameLocation == "end") {
+			y.NameTextStyle = &nameStyle{Align: "left"}
+		}
+		out[i] = y
 	}
 	return out
 }

@@ -7,6 +7,7 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -259,8 +260,8 @@ func TestStackedLegendFollowsLayers(t *testing.T) {
 		var opt struct {
 			Title  struct{ Text string } `json:"title"`
 			Legend struct {
-				Orient string   `json:"orient"`
-				Data   []string `json:"data"`
+				Orient string `json:"orient"`
+				Data   []any  `json:"data"` // names, or objects (an entry drawn as its line alone)
 			} `json:"legend"`
 		}
 		if err := json.Unmarshal([]byte(c[2]), &opt); err != nil {
@@ -271,12 +272,79 @@ func TestStackedLegendFollowsLayers(t *testing.T) {
 		}
 		found = true
 		want := "very_safe safe neutral unsafe very_unsafe"
-		if opt.Legend.Orient != "vertical" || strings.Join(opt.Legend.Data, " ") != want {
+		if opt.Legend.Orient != "vertical" || strings.Trim(fmt.Sprint(opt.Legend.Data), "[]") != want {
 			t.Errorf("%s: legend %+v, want vertical %s", c[1], opt.Legend, want)
 		}
 	}
 	if !found {
 		t.Fatal("no stacked chart in the golden report")
+	}
+}
+
+// TestChartLegendLinesAndAxisNames: in report.html the legend entries of
+// the boundary charts' interval and parallel line, drawn without points,
+// are their lines alone (the point hidden), the other entries as the
+// library draws them; every y axis name above the plot starts at the axis
+// (align left, so that a long name is not cut at the chart's left edge)
+// and the plot leaves it room below the subtitle.
+func TestChartLegendLinesAndAxisNames(t *testing.T) {
+	files := renderPlan(t, goldenPlan, 2)
+	boundaries, names := 0, 0
+	for _, c := range drawCall.FindAllStringSubmatch(string(files["report.html"]), -1) {
+		var opt struct {
+			Title struct {
+				Subtext string `json:"subtext"`
+			} `json:"title"`
+			Legend struct {
+				Data []json.RawMessage `json:"data"`
+			} `json:"legend"`
+			Grid []struct {
+				Top string `json:"top"`
+			} `json:"grid"`
+			YAxis []struct {
+				Name          string `json:"name"`
+				NameLocation  string `json:"nameLocation"`
+				NameTextStyle struct {
+					Align string `json:"align"`
+				} `json:"nameTextStyle"`
+			} `json:"yAxis"`
+		}
+		if err := json.Unmarshal([]byte(c[2]), &opt); err != nil {
+			t.Fatal(err)
+		}
+		for _, y := range opt.YAxis {
+			if y.Name == "" || y.NameLocation == "middle" {
+				continue
+			}
+			names++
+			if y.NameTextStyle.Align != "left" {
+				t.Errorf("%s: y axis name %q aligned %q, want left", c[1], y.Name, y.NameTextStyle.Align)
+			}
+			if top, err := strconv.Atoi(opt.Grid[0].Top); err == nil && top < 60+yNameRoom {
+				t.Errorf("%s: plot top %d leaves the y axis name no room below the subtitle", c[1], top)
+			}
+		}
+		if !strings.HasPrefix(opt.Title.Subtext, "slope at each boundary") {
+			continue
+		}
+		boundaries++
+		hidden, band := map[string]bool{}, false
+		for _, d := range opt.Legend.Data {
+			var item struct {
+				Name      string
+				ItemStyle struct{ Opacity *float64 }
+			}
+			if json.Unmarshal(d, &item) == nil && item.ItemStyle.Opacity != nil && *item.ItemStyle.Opacity == 0 {
+				hidden[item.Name] = true
+				band = band || strings.HasSuffix(item.Name, "% interval")
+			}
+		}
+		if !band || !hidden["parallel"] || hidden["nonparallel"] || len(opt.Legend.Data) < 3 {
+			t.Errorf("%s: legend %s, want the interval and parallel entries as lines alone", c[1], opt.Legend.Data)
+		}
+	}
+	if boundaries == 0 || names == 0 {
+		t.Fatalf("golden report: %d boundary charts, %d y axis names above a plot", boundaries, names)
 	}
 }
 
