@@ -432,18 +432,9 @@ func mistakeItems(dir string) []badInput {
 				if !strings.Contains(errs, want) {
 					t.Errorf("check: want %q in\n%s", want, errs)
 				}
-				o := filepath.Join(dir, "W34-out")
-				_, e, code := runCLI("run", plan, "--out", o, "--quiet")
-				if code != 0 || !strings.Contains(e, want) {
-					t.Errorf("run: exit %d, want %q in\n%s", code, want, e)
-				}
-				note := `Predictor column \"s\" is observed in 40 of the 120 rows (80 missing, 66.7%), fewer than half: every row missing it, 80, is dropped`
-				if b, err := os.ReadFile(filepath.Join(o, "decisions.json")); err != nil || !strings.Contains(string(b), note) {
-					t.Errorf("decisions.json: want %q among the notes (%v)", note, err)
-				}
-				if b, err := os.ReadFile(filepath.Join(o, "report.md")); err != nil || !strings.Contains(string(b), `Predictor column "s" is observed in 40 of the 120 rows`) {
-					t.Errorf("report.md: no note on column s (%v)", err)
-				}
+				warnedInRun(t, plan, filepath.Join(dir, "W34-out"), want,
+					`Predictor column \"s\" is observed in 40 of the 120 rows (80 missing, 66.7%), fewer than half: every row missing it, 80, is dropped`,
+					`Predictor column "s" is observed in 40 of the 120 rows`)
 				// Imputed, the warning says what the imputed values rest on.
 				imp := filepath.Join(dir, "W34imp.yaml")
 				b, err := os.ReadFile(plan)
@@ -453,7 +444,7 @@ func mistakeItems(dir string) []badInput {
 				if err := os.WriteFile(imp, []byte(strings.Replace(string(b), "  file: W34.csv\n", "  file: W34.csv\n  missing: impute\n", 1)), 0o644); err != nil {
 					t.Fatal(err)
 				}
-				_, e, code = runCLI("check", imp)
+				_, e, code := runCLI("check", imp)
 				want = "warning: " + imp + `: outcome y: Predictor column "s" is observed in 40 of the 120 rows (80 missing, 66.7%), fewer than half: more of its values are imputed than observed, and the 80 imputed rest on those 40 observed and on the imputation models: the fewer observed, the more its estimated effects restate those models rather than the data. Check the column (the one meant, its missing-value markers); if it is this sparse, leave it out of the predictors, or analyse the rows that have it (subset)` + "\n"
 				if code != 0 || !strings.Contains(e, want) {
 					t.Errorf("check (impute): exit %d, want %q in\n%s", code, want, e)
@@ -503,18 +494,9 @@ func mistakeItems(dir string) []badInput {
 				if !strings.Contains(errs, want) {
 					t.Errorf("check: want %q in\n%s", want, errs)
 				}
-				o := filepath.Join(dir, "W35-out")
-				_, e, code := runCLI("run", plan, "--out", o, "--quiet")
-				if code != 0 || !strings.Contains(e, want) {
-					t.Errorf("run: exit %d, want %q in\n%s", code, want, e)
-				}
-				note := `Few rows at some levels of categorical predictors (fewer than 10 of the 120 rows used): g = rare (6 rows), g \"n\" with k \"hi\" (2 rows`
-				if b, err := os.ReadFile(filepath.Join(o, "decisions.json")); err != nil || !strings.Contains(string(b), note) {
-					t.Errorf("decisions.json: want %q among the notes (%v)", note, err)
-				}
-				if b, err := os.ReadFile(filepath.Join(o, "report.md")); err != nil || !strings.Contains(string(b), `Few rows at some levels of categorical predictors (fewer than 10 of the 120 rows used): g = rare (6 rows)`) {
-					t.Errorf("report.md: no note on level rare (%v)", err)
-				}
+				warnedInRun(t, plan, filepath.Join(dir, "W35-out"), want,
+					`Few rows at some levels of categorical predictors (fewer than 10 of the 120 rows used): g = rare (6 rows), g \"n\" with k \"hi\" (2 rows`,
+					`Few rows at some levels of categorical predictors (fewer than 10 of the 120 rows used): g = rare (6 rows)`)
 				// ordplan fit gives the same warning on standard error, and a
 				// reference level among them is to be chosen by |ref=.
 				fitArgs := []string{"fit", "--data", filepath.Join(dir, "W35.csv"), "--outcome", "y", "--predictors", "a,g|levels=m/n/rare,k|levels=lo/hi,g&k"}
@@ -546,7 +528,7 @@ func mistakeItems(dir string) []badInput {
 				if _, e, code := runCLI("check", sep); code != 0 || !strings.Contains(e, `g = rare (6 rows), g "n" with k "hi" (2 rows, in term "g&k")`) {
 					t.Errorf("check, separated cell: exit %d\n%s", code, e)
 				}
-				_, e, _ = runCLI("run", sep, "--out", filepath.Join(dir, "W35sep-out"), "--quiet")
+				_, e, _ := runCLI("run", sep, "--out", filepath.Join(dir, "W35sep-out"), "--quiet")
 				if !strings.Contains(e, `(fewer than 10 of the 120 rows used): g = rare (6 rows). The coefficients`) {
 					t.Errorf("run, separated cell: want rare alone in\n%s", e)
 				}
@@ -636,4 +618,21 @@ func w35Data(t *testing.T, dir, name string, nHi int) {
 		}
 		return g + "," + k
 	})
+}
+
+// warnedInRun runs the plan into out and checks that the run warns on
+// stderr as want says (exit 0), that decisions.json holds note (JSON
+// text) among the outcome's notes and that report.md holds reportText.
+func warnedInRun(t *testing.T, plan, out, want, note, reportText string) {
+	t.Helper()
+	_, e, code := runCLI("run", plan, "--out", out, "--quiet")
+	if code != 0 || !strings.Contains(e, want) {
+		t.Errorf("run: exit %d, want %q in\n%s", code, want, e)
+	}
+	if b, err := os.ReadFile(filepath.Join(out, "decisions.json")); err != nil || !strings.Contains(string(b), note) {
+		t.Errorf("decisions.json: want %q among the notes (%v)", note, err)
+	}
+	if b, err := os.ReadFile(filepath.Join(out, "report.md")); err != nil || !strings.Contains(string(b), reportText) {
+		t.Errorf("report.md: want %q (%v)", reportText, err)
+	}
 }
