@@ -74,11 +74,7 @@ var stopOnInterrupt = func(s os.Signal) {
 	if p, err := os.FindProcess(os.Getpid()); err == nil && p.Signal(s) == nil {
 		time.Sleep(time.Second)
 	}
-	code := 130
-	if n, ok := s.(syscall.Signal); ok {
-		code = 128 + int(n)
-	}
-	os.Exit(code)
+	os.Exit(signalExit(s))
 }
 
 // watchInterrupts starts the watch for command (run, rehearse, power)

@@ -130,7 +130,9 @@ func (p *proc) kill(t *testing.T) {
 	}
 }
 
-// stop asks the process to finish, then kills it if it does not.
+// stop asks the process to finish; a process still busy after 2 s (a
+// worker finishing, or holding, a job) is asked a second time, which
+// stops a worker at once; one that does not stop then is killed.
 func (p *proc) stop(t *testing.T) {
 	select {
 	case <-p.done:
@@ -140,8 +142,14 @@ func (p *proc) stop(t *testing.T) {
 	p.cmd.Process.Signal(syscall.SIGTERM)
 	select {
 	case <-p.done:
+		return
+	case <-time.After(2 * time.Second):
+	}
+	p.cmd.Process.Signal(syscall.SIGTERM)
+	select {
+	case <-p.done:
 	case <-time.After(10 * time.Second):
-		t.Error("a process did not stop on SIGTERM")
+		t.Error("a process did not stop on a second SIGTERM")
 		p.kill(t)
 	}
 }

@@ -8,6 +8,8 @@ import (
 	"io"
 	"os"
 	"os/signal"
+	"sync"
+	"syscall"
 	"time"
 
 	"ordplan/runner/queue"
@@ -72,12 +74,95 @@ func usageOrFail(cmd string, err error, stderr interface{ Write([]byte) (int, er
 // catching the signals.
 func connectQueue(cfg queue.Config, deadline time.Duration, log io.Writer) (ctx context.Context, c *queue.Client, done func(), err error) {
 	ctx, stop := signal.NotifyContext(context.Background(), stopSignals()...)
-	cfg.Log = log
-	c, err = queue.Connect(ctx, cfg)
+	c, err = dialQueue(ctx, cfg, deadline, log)
 	if err != nil {
 		stop()
 		return nil, nil, nil, err
 	}
-	c.JobDeadline = deadline
 	return ctx, c, func() { c.Close(); stop() }, nil
+}
+
+// dialQueue connects to the queue within ctx; log hears of the connection
+// lost and made again.
+func dialQueue(ctx context.Context, cfg queue.Config, deadline time.Duration, log io.Writer) (*queue.Client, error) {
+	cfg.Log = log
+	c, err := queue.Connect(ctx, cfg)
+	if err != nil {
+		return nil, err
+	}
+	c.JobDeadline = deadline
+	return c, nil
+}
+
+// workerSignals are a worker's stop signals (stopSignals): the first ends
+// stop (the worker takes no new job and finishes those it started), the
+// second ends abort (it gives them back and stops at once), and a later
+// one is ignored while the worker gives its jobs back.
+type workerSignals struct {
+	stop, abort context.Context
+	ch          chan os.Signal
+	mu          sync.Mutex
+	second      os.Signal
+}
+
+// watchWorkerSignals starts catching the stop signals for the worker
+// name, telling log (nil: nobody) at the first what a second would do.
+func watchWorkerSignals(name string, log io.Writer) *workerSignals {
+	stop, endStop := context.WithCancel(context.Background())
+	abort, endAbort := context.WithCancel(context.Background())
+	ws := &workerSignals{stop: stop, abort: abort, ch: make(chan os.Signal, 2)}
+	signal.Notify(ws.ch, stopSignals()...)
+	go func() {
+		s, ok := <-ws.ch
+		if !ok {
+			return
+		}
+		if log != nil {
+			fmt.Fprintf(log, "worker %s: asked to stop (%s): it takes no new job and finishes the jobs it started; stop it again (Ctrl-C, SIGTERM) to give them back unfinished and stop at once\n", name, signalName(s))
+		}
+		endStop()
+		s, ok = <-ws.ch
+		if !ok {
+			return
+		}
+		ws.mu.Lock()
+		ws.second = s
+		ws.mu.Unlock()
+		endAbort()
+	}()
+	return ws
+}
+
+// secondSignal is the signal that aborted the worker (nil: none).
+func (ws *workerSignals) secondSignal() os.Signal {
+	ws.mu.Lock()
+	defer ws.mu.Unlock()
+	return ws.second
+}
+
+// end stops catching the signals.
+func (ws *workerSignals) end() {
+	signal.Stop(ws.ch)
+}
+
+// signalName names a stop signal in a message.
+func signalName(s os.Signal) string {
+	switch s {
+	case os.Interrupt:
+		return "SIGINT"
+	case syscall.SIGTERM:
+		return "SIGTERM"
+	case syscall.SIGHUP:
+		return "SIGHUP"
+	}
+	return s.String()
+}
+
+// signalExit is the exit code of a command stopped by s: 128 + its
+// number (130 for SIGINT), as a shell reports.
+func signalExit(s os.Signal) int {
+	if n, ok := s.(syscall.Signal); ok {
+		return 128 + int(n)
+	}
+	return 130
 }

@@ -2,6 +2,7 @@ package main
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"io"
 	"os"
@@ -77,17 +78,29 @@ func runWorker(args []string, stdout, stderr io.Writer, hold time.Duration, hold
 	if err := queue.CacheUsable(*cache); err != nil {
 		return fail(stderr, err)
 	}
-	ctx, c, done, err := connectQueue(cfg, 0, stderr)
+	var log io.Writer
+	if !*quiet {
+		log = stderr
+	}
+	sig := watchWorkerSignals(*name, log)
+	defer sig.end()
+	c, err := dialQueue(sig.stop, cfg, 0, stderr)
 	if err != nil {
 		return fail(stderr, err)
 	}
-	defer done()
 	w := &queue.Worker{Client: c, Name: *name, CacheDir: *cache, Jobs: *jobs, AckWait: *ackWait, Delay: hold, DelayKind: holdKind,
-		Limits: queue.Limits{Starts: *maxStarts, Iterations: *maxIter, Predictors: *maxPred, DataBytes: *maxData << 20}}
-	if !*quiet {
-		w.Log = stderr
+		Limits: queue.Limits{Starts: *maxStarts, Iterations: *maxIter, Predictors: *maxPred, DataBytes: *maxData << 20},
+		Abort:  sig.abort, Log: log}
+	err = w.Run(sig.stop)
+	c.Close() // sends the jobs given back before the process ends
+	var aborted *queue.AbortedError
+	if errors.As(err, &aborted) {
+		// A second stop signal: the jobs are not done, which the exit
+		// status says as an interrupted command's does (O8).
+		fmt.Fprintf(stderr, "ordplan worker: %v\n", err)
+		return signalExit(sig.secondSignal())
 	}
-	if err := w.Run(ctx); err != nil {
+	if err != nil {
 		return fail(stderr, err)
 	}
 	return exitOK

@@ -2,6 +2,7 @@ package main
 
 import (
 	"os"
+	"path/filepath"
 	"strings"
 	"syscall"
 	"testing"
@@ -32,5 +33,62 @@ func TestWorkerStopsCleanlyOnSignal(t *testing.T) {
 		if !strings.Contains(p.stderr.String(), "stopped; it finished the jobs it had started first") {
 			t.Errorf("%v: no line saying the worker stopped: %s", sig, p.stderr.String())
 		}
+	}
+}
+
+// TestWorkerSecondSignalGivesJobsBack: a worker asked to stop while it
+// computes a job goes on with it, saying that a second signal stops it at
+// once; the second signal (Ctrl-C twice, SIGTERM twice) makes it give the
+// job back unacknowledged, say so, and exit with the signal's status
+// (130, 143) without waiting for the job; another worker then computes
+// the job and the run it belongs to ends as a local run does.
+func TestWorkerSecondSignalGivesJobsBack(t *testing.T) {
+	dir := t.TempDir()
+	plan := filepath.Join("..", "..", "runner", "testdata", "gss_stepwise.yaml")
+	local, remote := filepath.Join(dir, "local"), filepath.Join(dir, "queue")
+	if out, errs, code := runCLI("run", plan, "--out", local, "--quiet"); code != 0 {
+		t.Fatalf("local run: exit %d: %s %s", code, out, errs)
+	}
+	url := localserver.ForTest(t)
+	run := runAsync("run", plan, "--out", remote, "--queue", url)
+	for _, sig := range []syscall.Signal{syscall.SIGINT, syscall.SIGTERM} {
+		name := "held-" + strings.ToLower(sig.String()[:3])
+		p := startWorkerProc(t, url, name, holdEnv+"=60s")
+		p.waitLog(t, 30*time.Second, "holding")
+		p.cmd.Process.Signal(sig)
+		p.waitLog(t, 10*time.Second, "asked to stop")
+		select {
+		case <-p.done:
+			t.Fatalf("%v: the worker stopped before finishing the job it held: %s", sig, p.stderr.String())
+		case <-time.After(3 * time.Second): // beyond the ack wait (2s): the job stays with it
+		}
+		p.cmd.Process.Signal(sig)
+		select {
+		case <-p.done:
+		case <-time.After(10 * time.Second):
+			t.Fatalf("%v: a second signal did not stop the worker at once: %s", sig, p.stderr.String())
+		}
+		log := p.stderr.String()
+		if code := p.cmd.ProcessState.ExitCode(); code != 128+int(sig) {
+			t.Errorf("%v: exit %d, want %d: %s", sig, code, 128+int(sig), log)
+		}
+		for _, want := range []string{
+			"worker " + name + ": asked to stop (" + map[syscall.Signal]string{syscall.SIGINT: "SIGINT", syscall.SIGTERM: "SIGTERM"}[sig] + "): it takes no new job and finishes the jobs it started; stop it again",
+			"worker " + name + ": gave back ordplan.jobs.",
+			"ordplan worker: worker " + name + ": stopped at once, asked a second time; it gave back the 1 job it had not finished, unacknowledged",
+		} {
+			if !strings.Contains(log, want) {
+				t.Errorf("%v: no %q in the worker's log:\n%s", sig, want, log)
+			}
+		}
+		if strings.Contains(log, "stopped; it finished the jobs it had started first") {
+			t.Errorf("%v: the worker says it finished its jobs:\n%s", sig, log)
+		}
+	}
+	w := startWorkerProc(t, url, "w1")
+	waitRun(t, run, 120*time.Second)
+	sameOutputs(t, local, remote)
+	if !strings.Contains(w.stderr.String(), "(delivery 3)") {
+		t.Errorf("the job given back twice was not delivered a third time:\n%s", w.stderr.String())
 	}
 }

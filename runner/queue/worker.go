@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"sync"
+	"sync/atomic"
 	"time"
 
 	"github.com/nats-io/nats.go/jetstream"
@@ -23,10 +24,20 @@ type Worker struct {
 	Limits   Limits        // what a job may ask (zero fields: DefaultLimits)
 	// Delay makes the worker wait this long after taking each job, before
 	// computing it. Test-only: it lets tests kill a worker while it holds a
-	// job and check that in-progress acknowledgements keep a slow job.
+	// job and check that in-progress acknowledgements keep a slow job. A
+	// held job counts as started: a stop (ctx) waits for it, an Abort
+	// gives it back.
 	Delay time.Duration
 	// DelayKind limits Delay to the jobs of one kind ("": every job).
 	DelayKind string
+	// Abort, when it ends, stops the worker at once: the jobs it is
+	// computing (or holding, see Delay) are given back to the server
+	// unacknowledged, for another worker or a later run, and Run returns
+	// an *AbortedError. nil: only ctx stops the worker, which then
+	// finishes the jobs it started.
+	Abort context.Context
+
+	abandoned atomic.Int64 // jobs given back because of Abort
 
 	cache    *dataCache
 	parts    *partitionCache
@@ -34,8 +45,28 @@ type Worker struct {
 	interval time.Duration
 }
 
+// AbortedError is Run's error when Abort ended: the worker stopped without
+// finishing the jobs it had started, and gave them back.
+type AbortedError struct {
+	Name     string
+	GaveBack int // jobs given back unacknowledged
+}
+
+func (e *AbortedError) Error() string {
+	what := "it was computing no job"
+	switch e.GaveBack {
+	case 0:
+	case 1:
+		what = "it gave back the 1 job it had not finished, unacknowledged: the server delivers it again to another worker (or to this one, started again), and a waiting run gets its result from there"
+	default:
+		what = fmt.Sprintf("it gave back the %d jobs it had not finished, unacknowledged: the server delivers them again to another worker (or to this one, started again), and a waiting run gets their results from there", e.GaveBack)
+	}
+	return fmt.Sprintf("worker %s: stopped at once, asked a second time; %s", e.Name, what)
+}
+
 // Run processes jobs until ctx is cancelled. A job being computed when ctx
-// is cancelled is finished and stored first.
+// is cancelled is finished and stored first, unless Abort ends meanwhile
+// (see Abort).
 func (w *Worker) Run(ctx context.Context) error {
 	if w.Jobs <= 0 {
 		w.Jobs = 1
@@ -72,6 +103,9 @@ func (w *Worker) Run(ctx context.Context) error {
 		}()
 	}
 	wg.Wait()
+	if w.aborted() {
+		return &AbortedError{Name: w.Name, GaveBack: int(w.abandoned.Load())}
+	}
 	// Run ends when ctx does (the command's interrupt): say so, so that the
 	// log of a stopped worker does not end as if it were waiting for jobs.
 	w.logf("worker %s: stopped; it finished the jobs it had started first (a reply it could not store is logged above, and its job goes to another worker)", w.Name)
@@ -115,6 +149,12 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 	if md, err := msg.Metadata(); err == nil {
 		delivered = md.NumDelivered
 	}
+	if ctx.Err() != nil {
+		// Taken by a fetch that was waiting when the worker was asked to
+		// stop: not started, so given back at once.
+		msg.Nak()
+		return
+	}
 	t, err := w.Client.openTask(msg.Subject(), msg.Data())
 	if err != nil {
 		w.logf("worker %s: %s: job refused: %v", w.Name, msg.Subject(), err)
@@ -124,12 +164,19 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 	w.logf("worker %s: started %s %s (delivery %d)", w.Name, msg.Subject(), t.jobName(), delivered)
 	start := time.Now()
 	stop := w.keepAlive(msg)
-	if w.Delay > 0 && (w.DelayKind == "" || w.DelayKind == t.Kind) && !w.hold(ctx, t) {
+	abort := w.abortContext()
+	giveBack := func() {
 		stop()
 		msg.Nak()
+		w.abandoned.Add(1)
+		w.logf("worker %s: gave back %s %s unfinished (not acknowledged: delivered again to another worker)", w.Name, msg.Subject(), t.jobName())
+	}
+	if w.Delay > 0 && (w.DelayKind == "" || w.DelayKind == t.Kind) && !w.hold(abort, t) {
+		giveBack()
 		return
 	}
-	// Computing and storing do not stop halfway on shutdown.
+	// Computing and storing do not stop halfway on a stop (ctx); an
+	// abort gives the job back instead of waiting for it.
 	work := context.WithoutCancel(ctx)
 	var r *Reply
 	if delivered > PoisonAfter {
@@ -137,7 +184,14 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 			"%s: the job was delivered %d times and no worker finished it (each one stopped while computing it: out of memory, or killed?); it is not tried again",
 			t.ID, delivered)}
 	} else {
-		r = w.compute(work, t)
+		computed := make(chan *Reply, 1)
+		go func() { computed <- w.compute(work, t) }()
+		select {
+		case r = <-computed:
+		case <-abort.Done():
+			giveBack() // the computation is left to end with the process
+			return
+		}
 	}
 	if r.Fault && delivered < PoisonAfter {
 		// Perhaps another worker (or this one, later) can: the fault is
@@ -155,7 +209,7 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 		r = &Reply{Batch: t.Batch, Index: t.Index, ID: t.ID, Worker: w.Name, Delivered: delivered, Fault: true, Err: t.ID + ": " + err.Error()}
 		b, err = w.sealReply(work, key, r)
 	}
-	sctx, cancel := context.WithTimeout(work, 30*time.Second)
+	sctx, cancel := context.WithTimeout(abort, 30*time.Second)
 	defer cancel()
 	if err == nil {
 		_, err = w.Client.results.Create(sctx, key, b)
@@ -164,6 +218,9 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 	switch {
 	case errors.Is(err, jetstream.ErrKeyExists):
 		w.logf("worker %s: %s: a reply was already stored; this duplicate is dropped", w.Name, t.jobName())
+	case err != nil && w.aborted():
+		giveBack()
+		return
 	case err != nil:
 		w.logf("worker %s: %s: storing the reply: %v (job left for another try)", w.Name, t.jobName(), err)
 		msg.NakWithDelay(time.Second)
@@ -233,8 +290,21 @@ func (w *Worker) keepAlive(msg jetstream.Msg) func() {
 	}
 }
 
+// abortContext is Abort, or a context that never ends.
+func (w *Worker) abortContext() context.Context {
+	if w.Abort == nil {
+		return context.Background()
+	}
+	return w.Abort
+}
+
+// aborted tells whether Abort has ended.
+func (w *Worker) aborted() bool {
+	return w.Abort != nil && w.Abort.Err() != nil
+}
+
 // hold waits Delay before job t is computed, saying so; false when ctx
-// ended first.
+// (the abort) ended first.
 func (w *Worker) hold(ctx context.Context, t *Task) bool {
 	w.logf("worker %s: holding %s job %s for %s", w.Name, t.Kind, t.jobName(), w.Delay)
 	return sleep(ctx, w.Delay)
