@@ -2,7 +2,6 @@ package render
 
 import (
 	"fmt"
-	"math"
 	"sort"
 	"strconv"
 	"strings"
@@ -13,6 +12,7 @@ import (
 	"ordplan/plan"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
+	"ordplan/runner/fit"
 )
 
 // Stability of the model choice (selection_stability): the decision
@@ -161,7 +161,7 @@ func writeStability(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		d.p("Assumptions and limits of this study: the outcomes were drawn from the chosen model with the estimates of these data, so the shares describe what the rules do if that model, with those estimates, is true; they do not test whether it is, and a model the rules recover every time can still be wrong. The estimates carry the sampling error of these data, which the shares do not show; the Monte Carlo error in brackets is from %d simulated sets. Every restriction of the chosen model holds in each simulated set, so these shares have no lean towards the less constrained models, unlike bootstrap resamples (draw: bootstrap); the predictors, weights and clusters are those of these rows, not new ones.%s", st.Resamples, clusters)
 		return
 	}
-	d.p("Assumptions and limits of this study: it is a bootstrap of a selection procedure on the %s used, so every resample resembles these data, not a new sample from the population; the shares are estimates, with the Monte Carlo error in brackets from %d resamples and a sampling error from the data themselves that the brackets do not show. A resample repeats units, and a model that fits the data only roughly fits a resample more roughly still: a test of a restriction tends to give a larger statistic in a resample (on average about its value in the data plus its degrees of freedom), so tests reject restrictions more often in resamples than they would in new samples where the restriction holds, and the shares lean towards the less constrained models. A small share for the model the primary analysis chose means that data slightly different would have led the same rules to another model; when a test kept the choice with a statistic within about its degrees of freedom of the critical value, that lean alone makes the share small, and the share then tells how near the rule's margin the choice sits rather than how often a new study would repeat it. Either way the chosen model's intervals, which treat it as fixed in advance, leave that uncertainty out.", unitWord(st), st.Resamples)
+	d.p("Assumptions and limits of this study: it is a bootstrap of a selection procedure on the %s used, so every resample resembles these data, not a new sample from the population; the shares are estimates, with the Monte Carlo error in brackets from %d resamples and a sampling error from the data themselves that the brackets do not show. A resample repeats units, and a model that fits the data only roughly fits a resample more roughly still: a test of a restriction tends to give a larger statistic in a resample (in large samples, when the less constrained model fits, about a noncentral chi-squared on the test's degrees of freedom with the data's statistic as its noncentrality, so on average the data's statistic plus its degrees of freedom), so tests reject restrictions more often in resamples than they would in new samples where the restriction holds, and the shares lean towards the less constrained models. A small share for the model the primary analysis chose means that data slightly different would have led the same rules to another model; when a test kept the choice with a statistic close enough to its critical value that this noncentral chi-squared lies mostly beyond it, that lean alone makes the share small, and the share then tells how near the rule's margin the choice sits rather than how often a new study would repeat it. Either way the chosen model's intervals, which treat it as fixed in advance, leave that uncertainty out.", unitWord(st), st.Resamples)
 }
 
 // simulatedDraw says whether st's outcomes were drawn from the chosen
@@ -216,8 +216,8 @@ func stabilityReading(or *runner.OutcomeResult, st *runner.Stability, primary *r
 	case mostlyFailed(st):
 		s += failedReading(st, primary, "resamples")
 	case c.Rate < 0.5 && turn != nil && turn.expected:
-		s += fmt.Sprintf(" The rule that turns it down most often is rule %d (%s), in %d of %d resamples; in the primary analysis that rule kept it: %s. In a resample a test statistic of a restriction comes out at about its value in the data plus its degrees of freedom (here about %s, against the critical value %s), so a test with this p-value is expected to reject the restriction in most resamples: the bootstrap leans towards the less constrained models. The low share shows that the choice sits near this rule's margin, not how often a new study would choose the same model; the chosen model's intervals, which treat the choice as fixed in advance, leave out that the rule could have gone the other way. How often these rules would find the model if it held is another question, which `selection_stability.draw: chosen_model` answers.",
-			turn.number, mdCode(turn.kind), turn.share.Count, turn.share.Of, mdText(turn.reason), numfmt.Stat(turn.shifted), numfmt.Stat(turn.critical))
+		s += fmt.Sprintf(" The rule that turns it down most often is rule %d (%s), in %d of %d resamples; in the primary analysis that rule kept it: %s. A resample's statistic of a restriction is distributed, in large samples and when the less constrained model fits, about as a noncentral chi-squared on the test's degrees of freedom with the data's statistic as its noncentrality (here on %s df with noncentrality %s, mean %s), not as the central chi-squared the test refers to; that distribution puts a share of about %s of resamples beyond the critical value %s, so a test with this p-value is expected to reject the restriction in most resamples: the bootstrap leans towards the less constrained models. The low share shows that the choice sits near this rule's margin, not how often a new study would choose the same model; the chosen model's intervals, which treat the choice as fixed in advance, leave out that the rule could have gone the other way. How often these rules would find the model if it held is another question, which `selection_stability.draw: chosen_model` answers.",
+			turn.number, mdCode(turn.kind), turn.share.Count, turn.share.Of, mdText(turn.reason), numfmt.Num(turn.df), numfmt.Stat(turn.stat), numfmt.Stat(turn.stat+turn.df), numfmt.Prob(turn.rejects), numfmt.Stat(turn.critical))
 	case c.Rate < 0.5:
 		s += " That is less than half: the choice is fragile, and the effects reported for the chosen model carry an uncertainty of the choice that their intervals do not show."
 	case c.Rate < 0.8:
@@ -288,13 +288,13 @@ type stabilityTurning struct {
 	kind   string
 	share  runner.Rate
 	reason string // the primary analysis's verdict on the choice
-	// shifted is the largest test statistic plus its degrees of freedom
-	// over the rule's tests of the choice, about where the statistic sits
-	// in a resample; critical is that test's critical value at the rule's
-	// alpha; expected says shifted is beyond it, so that most resamples
-	// are expected to reject even though the data did not.
-	shifted, critical float64
-	expected          bool
+	// stat, df and critical are those of the rule's test of the choice
+	// that the bootstrap is expected to reject most often (bootstrapRejects):
+	// its statistic and degrees of freedom in the data and its critical
+	// value at the rule's alpha; rejects is that expected share of
+	// resamples, and expected says it is at least one half.
+	stat, df, critical, rejects float64
+	expected                    bool
 }
 
 // stabilityTurn finds the rule (not the last, which chooses) that
@@ -313,7 +313,8 @@ func stabilityTurn(or *runner.OutcomeResult, st *runner.Stability, model string)
 				for _, v := range or.Rules[i].Verdicts {
 					if v.Model == model && v.Kept {
 						best.reason = v.Reason
-						best.shifted, best.critical, best.expected = shiftedTest(v.Numbers)
+						best.stat, best.df, best.critical, best.rejects = bootstrapRejects(v.Numbers)
+						best.expected = best.rejects >= 0.5
 					}
 				}
 			}
@@ -325,14 +326,22 @@ func stabilityTurn(or *runner.OutcomeResult, st *runner.Stability, model string)
 	return best
 }
 
-// shiftedTest reads the chi-squared tests a verdict records (chi2, df and
-// alpha; F tests, with a second df, are left out) and gives, for the one
-// whose statistic plus df lies furthest beyond its critical value, that
-// sum and the critical value; expected when the sum passes it.
-func shiftedTest(nums map[string]float64) (shifted, critical float64, expected bool) {
+// bootstrapRejects reads the chi-squared tests a verdict records (chi2,
+// df and alpha; F tests, with a second df, are left out) and gives, for
+// the one a bootstrap resample is expected to reject most often, its
+// statistic, df and critical value and that expected share of resamples.
+// A nonparametric bootstrap resample is drawn from the data, in which the
+// restriction is off by as much as the data's statistic says: to first
+// order the resample's statistic of a test of df restrictions is then
+// noncentral chi-squared on df with the data's statistic T as its
+// noncentrality (mean T + df), in large samples, when the less
+// constrained model fits (its scores' variance is its information). The
+// share is P(chi2(df, ncp = T) > critical); a rule that rejects when any
+// of its tests does rejects at least that often.
+func bootstrapRejects(nums map[string]float64) (stat, df, critical, rejects float64) {
 	alpha, ok := nums["alpha"]
 	if !ok {
-		return 0, 0, false
+		return 0, 0, 0, 0
 	}
 	var keys []string
 	for k := range nums {
@@ -341,19 +350,22 @@ func shiftedTest(nums map[string]float64) (shifted, critical float64, expected b
 		}
 	}
 	sort.Strings(keys)
-	margin := math.Inf(-1)
+	rejects = -1
 	for _, k := range keys {
 		target := strings.TrimPrefix(k, "chi2_against_")
-		df, ok := nums["df_against_"+target]
-		if _, f := nums["df2_against_"+target]; !ok || f || df <= 0 {
+		d, ok := nums["df_against_"+target]
+		if _, f := nums["df2_against_"+target]; !ok || f || d <= 0 || !(nums[k] >= 0) {
 			continue
 		}
-		crit := distuv.ChiSquared{K: df}.Quantile(1 - alpha)
-		if m := nums[k] + df - crit; m > margin {
-			margin, shifted, critical = m, nums[k]+df, crit
+		crit := distuv.ChiSquared{K: d}.Quantile(1 - alpha)
+		if p := fit.NoncentralChi2Survival(crit, d, nums[k]); p > rejects {
+			stat, df, critical, rejects = nums[k], d, crit, p
 		}
 	}
-	return shifted, critical, critical > 0 && shifted > critical
+	if rejects < 0 {
+		return 0, 0, 0, 0
+	}
+	return stat, df, critical, rejects
 }
 
 // stabilityCSV is table-stability-OUTCOME.csv: one row per share.

@@ -11,12 +11,14 @@ import (
 // TestStabilityReadingNearMargin: the plain reading of a share the
 // primary's choice got in few resamples names the test that turned it
 // down most often, with its p-value in the primary analysis, and reads
-// the low share as the bootstrap's lean when the statistic plus its
-// degrees of freedom passes the critical value (chi2(27) = 36.974, p =
-// 0.0956: 36.974 + 27 = 63.974 > 40.113, the 0.95 quantile of chi-squared
-// on 27 df in the usual printed tables); with a statistic far below it
-// (chi2(27) = 5.0, 5 + 27 < 40.113) or a rule that is no test, the
-// reading keeps calling the choice fragile.
+// the low share as the bootstrap's lean when most resamples are expected
+// to reject: chi2(27) = 36.974, p = 0.0956, whose resamples' statistic is
+// about noncentral chi-squared on 27 df with noncentrality 36.974, beyond
+// the critical value 40.113 with probability 0.9671 (base R:
+// pchisq(qchisq(0.95, 27), 27, ncp = 36.974, lower.tail = FALSE) =
+// 0.96709244); with a statistic far below it (chi2(27) = 5.0: 0.1684 by
+// the same R call with ncp = 5) or a rule that is no test, the reading
+// keeps calling the choice fragile.
 func TestStabilityReadingNearMargin(t *testing.T) {
 	const chosen, full = "cumulative/constrained/logit", "cumulative/nonparallel/logit"
 	build := func(kind string, nums map[string]float64) (*runner.OutcomeResult, *runner.Stability, *runner.StabilityModel) {
@@ -40,7 +42,7 @@ func TestStabilityReadingNearMargin(t *testing.T) {
 	or, st, pm := build(plan.RuleRejectIfTestRejects, test(36.974))
 	got := stabilityReading(or, st, pm, st.Models[1])
 	for _, want := range []string{"chose it again in 2 of 40", "rule 1 (`reject_if_test_rejects`), in 38 of 40 resamples",
-		"chi2(27) = 36.974, p = 0.0956", "here about 63.974, against the critical value 40.113", "expected to reject the restriction in most resamples",
+		"chi2(27) = 36.974, p = 0.0956", "here on 27 df with noncentrality 36.974, mean 63.974", "a share of about 0.9671 of resamples beyond the critical value 40.113", "expected to reject the restriction in most resamples",
 		"near this rule's margin, not how often a new study would choose the same model"} {
 		if !strings.Contains(got, want) {
 			t.Errorf("near the margin: the reading lacks %q:\n%s", want, got)

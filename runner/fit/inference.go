@@ -109,3 +109,49 @@ func FSurvival(f float64, k int, df2 float64) float64 {
 	d1 := float64(k)
 	return mathext.RegIncBeta(df2/2, d1/2, df2/(df2+d1*f))
 }
+
+// NoncentralChi2Survival is P(X > x) for X noncentral chi-squared on k
+// degrees of freedom with noncentrality ncp: the Poisson(ncp/2) mixture of
+// central chi-squared tails on k + 2j degrees of freedom, summed outward
+// from the Poisson mode until the weights left cannot change the sum.
+func NoncentralChi2Survival(x, k, ncp float64) float64 {
+	switch {
+	case math.IsNaN(x) || math.IsNaN(k) || math.IsNaN(ncp) || k <= 0 || ncp < 0:
+		return math.NaN()
+	case x <= 0:
+		return 1
+	case ncp == 0:
+		return distuv.ChiSquared{K: k}.Survival(x)
+	}
+	mu := ncp / 2
+	mode := math.Floor(mu)
+	logw := func(j float64) float64 {
+		lg, _ := math.Lgamma(j + 1)
+		return -mu + j*math.Log(mu) - lg
+	}
+	term := func(j float64) (w, t float64) {
+		w = math.Exp(logw(j))
+		return w, w * distuv.ChiSquared{K: k + 2*j}.Survival(x)
+	}
+	_, sum := term(mode)
+	// Upward: each tail is at most 1 and the weights past j fall at least
+	// as fast as the ratio r = mu/(j+2) < 1, so w r/(1-r) bounds the rest.
+	for j := mode + 1; ; j++ {
+		w, t := term(j)
+		sum += t
+		r := mu / (j + 2)
+		if w*r/(1-r) < 1e-17*sum || j > mode+1e7 {
+			break
+		}
+	}
+	// Downward: the tails shrink as j falls and so do the weights, so
+	// the terms below one under 1e-17 of the sum add at most j times it.
+	for j := mode - 1; j >= 0; j-- {
+		_, t := term(j)
+		sum += t
+		if t*(j+1) < 1e-17*sum {
+			break
+		}
+	}
+	return math.Min(1, sum)
+}
