@@ -156,6 +156,7 @@ func writePairsAtPoints(d *doc, r *runner.Result, or *runner.OutcomeResult, set 
 		if me.Kind == "means" && r.Analysis != nil && r.Analysis.Errors.Sampling {
 			d.p("%s", samplingMeansNote)
 		}
+		heldSharesNote(d, or, me, "differences")
 		if me.Kind == "profile" {
 			profileOutsideNote(d, or, "differences")
 		}

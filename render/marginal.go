@@ -6,6 +6,7 @@ import (
 	"slices"
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/design"
@@ -40,12 +41,14 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 				at = "every numeric predictor at its mean and every categorical one at its reference level, not at its shares in the data"
 			}
 			d.p("The same effects at one point: %s (%s), a 0/1 predictor changed from 0 to 1 with the others at that point. Standard errors by the delta method; intervals at %s, symmetric about the effect (the effect plus and minus a quantile times its standard error, since an effect, a change of a probability, can be negative).%s", at, mdText(pointList(or, set.Point)), pct(level), categorical)
+			heldSharesNote(d, or, set, "effects")
 			if sampling {
 				d.p("%s", samplingMeansNote)
 			}
 		case "profile":
 			d.h(3, "Marginal effects at the plan's profile")
 			d.p("The effects at the point %s (predictors the plan's profile does not set are at their means, categorical ones at their reference level; a 0/1 predictor is changed from 0 to 1, any other numeric predictor differentiated, at that point). Standard errors by the delta method; intervals at %s, symmetric about the effect (the effect plus and minus a quantile times its standard error, since an effect, a change of a probability, can be negative).%s", mdText(pointList(or, set.Point)), pct(level), categorical)
+			heldSharesNote(d, or, set, "effects")
 			profileOutsideNote(d, or, "effects")
 		}
 		if set.Error != "" {
@@ -182,4 +185,44 @@ func profileOutsideNote(d *doc, or *runner.OutcomeResult, what string) {
 	}
 	d.p("**Outside the population fitted:** the plan's profile lies outside the population the model was fitted to: %s. The %s at it rest there on the model's form alone, and their intervals do not show that; read them with care.",
 		mdText(strings.Join(or.ProfileOutside, "; ")), what)
+}
+
+// heldSharesNote says, beside effects (what: "effects", "differences")
+// taken at the one point of set (at the means, at the plan's profile),
+// which columns holding only 0 and 1 that point holds at their mean, the
+// share of rows at 1 (runner.OutcomeResult.SharesAt): a value no row has,
+// so the effects there are of no one who exists and, the model not being
+// linear, not the mix of those at 0 and at 1 either. It names the average
+// marginal effects as the reading to prefer, and how to ask for them when
+// the plan does not. Nothing when the point holds no such column.
+func heldSharesNote(d *doc, or *runner.OutcomeResult, set runner.MarginalSet, what string) {
+	names, held := or.SharesAt(set.Point)
+	if len(names) == 0 {
+		return
+	}
+	var code []string
+	for _, n := range names {
+		code = append(code, mdCode(n))
+	}
+	cols := "column " + code[0] + ", which holds only 0 and 1 in the data, is"
+	it := "its mean, the share of rows at 1"
+	if len(names) > 1 {
+		cols = "columns " + words.AndList(code) + ", which hold only 0 and 1 in the data, are"
+		it = "their means, the shares of rows at 1"
+	}
+	average := "The average marginal effects above"
+	switch i := slices.IndexFunc(or.Marginal, func(m runner.MarginalSet) bool { return m.Kind == "average" }); {
+	case what == "differences":
+		average = "The average differences above"
+	case i < 0:
+		average = "Average marginal effects (" + mdCode("inference.marginal_effects: [average]") + ", the default, which this plan leaves out)"
+	case i > slices.IndexFunc(or.Marginal, func(m runner.MarginalSet) bool { return m.Kind == set.Kind }):
+		average = "The average marginal effects below"
+	}
+	own, each := " (the effect of such a column itself sets it to 0 and to 1 at this point)", "effect"
+	if what == "differences" {
+		own, each = "", "difference"
+	}
+	d.p("At this point the %s held at %s (%s): no row of the data has such a value, so these %s are those of no one who exists and, the model not being linear, not the mix of the %s at 0 and at 1 in those shares either%s. %s, each row's own %s at its own values averaged over the rows used, are the reading to prefer for a 0/1 predictor and wherever 0/1 columns would otherwise be held at a share.",
+		cols, it, mdText(strings.Join(held, ", ")), what, what, own, average, each)
 }

@@ -420,7 +420,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 			}
 		}
 		head = append(head, "at", "at_outside")
-		about += "; at: the point of effects at the means or at the plan's profile (every column the predictors read); at_outside: true where that point is the plan's profile and it lies outside the population the model was fitted to (why: decisions.json's profile_outside and the report; the means are inside by construction)"
+		about += "; at: the point of effects at the means or at the plan's profile (every column the predictors read; a column holding only 0 and 1 whose value there lies between 0 and 1 is held at its mean, the share of rows at 1, a value no row has: the average effects are the reading to prefer for 0/1 predictors); at_outside: true where that point is the plan's profile and it lies outside the population the model was fitted to (why: decisions.json's profile_outside and the report; the means are inside by construction)"
 		add("marginal-effects", about, head, rows)
 	}
 	if len(or.LevelPairs) > 0 {

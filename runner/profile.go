@@ -318,3 +318,23 @@ func (or *OutcomeResult) ensureDesign() error {
 	}
 	return nil
 }
+
+// SharesAt lists the numeric columns that hold only 0 and 1 in the data
+// and lie strictly between 0 and 1 in point, the raw row of marginal
+// effects or differences at one point (MarginalSet.Point): the columns
+// the means, or the predictors a profile does not set, hold at the share
+// of rows at 1, a value no single row has. Each with that value, as
+// HeldZeroOne writes them.
+func (or *OutcomeResult) SharesAt(point []float64) (names, held []string) {
+	if or.Design == nil {
+		return nil, nil
+	}
+	for s, src := range or.Design.Sources {
+		if s >= len(point) || src.Cat != nil || !(point[s] > 0 && point[s] < 1) || !or.zeroOne(src.Name) {
+			continue
+		}
+		names = append(names, src.Name)
+		held = append(held, fmt.Sprintf("%s %s", src.Name, numfmt.Num(point[s])))
+	}
+	return names, held
+}
