@@ -46,7 +46,7 @@ func PowerOutputs(pr *simulate.PowerResult, reg *lock.Status) (map[string][]byte
 	}
 	d.p("**%s.** No real observation was used: `ordplan power` drew %d data sets at each sample size (%s) from the plan's `assumptions` and data dictionary (seed %d, %s model generating each outcome) and ran the plan's whole decision procedure on each: the grid of fits, the tests, the rules in order and the plan's hypotheses in the chosen model (Wald tests at alpha %g).%s Written by ordplan %s from the plan %s (sha256 `%s`).",
 		SimulatedMark, pr.Replicates, strings.Join(sizes, ", "), pr.Seed, pr.Generator, pr.Alpha, powerTests(pr), pr.Version, mdCode(pr.PlanFile), pr.PlanSHA256)
-	writeLockStatus(d, reg, pr.Version, powerLockWords, nil)
+	writeLockStatus(d, reg, pr.Version, powerLockWords, nil, nil)
 	if len(pr.SensitivityNotRun) > 0 {
 		names := make([]string, len(pr.SensitivityNotRun))
 		for i, n := range pr.SensitivityNotRun {

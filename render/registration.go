@@ -57,18 +57,24 @@ func writeRegistration(d *doc, r *runner.Result) {
 	if r.Simulated != nil {
 		words = rehearseLockWords
 	}
-	writeLockStatus(d, r.Registration, r.Version, words, r.EarlierRegistered)
+	writeLockStatus(d, r.Registration, r.Version, words, r.EarlierRegistered, r.UnderEarlierLocks)
 }
 
 // writeLockStatus writes the plan compared with its lock (st nil: not
 // compared) in the words of the kind of report; version is the program's,
 // earlier the runs of the registered plan the output folder holds
-// (runner.EarlierRegisteredRuns).
-func writeLockStatus(d *doc, st *lock.Status, version string, w lockWords, earlier []runner.EarlierRun) {
+// (runner.EarlierRegisteredRuns), underEarlier its runs under other locks
+// of the plan (runner.EarlierLockRuns).
+func writeLockStatus(d *doc, st *lock.Status, version string, w lockWords, earlier []runner.EarlierRun, underEarlier []runner.EarlierLockRun) {
 	if st == nil {
 		return
 	}
-	defer writeReplacedLocks(d, st, w)
+	defer func() {
+		writeReplacedLocks(d, st, w, w.folder && len(underEarlier) > 0)
+		if w.folder {
+			writeUnderEarlierLocks(d, st, underEarlier)
+		}
+	}()
 	f := st.Lock
 	frozen := func() string {
 		s := fmt.Sprintf("%s, frozen at %s by ordplan %s, canonical sha256 `%s`", mdCode(st.LockFile), f.FrozenAt, f.Version, f.SHA256)
@@ -127,8 +133,9 @@ func codeCell(s string) string {
 // freeze --replace kept beside its lock (R16): the plan was frozen anew,
 // so it counts as registered only from the lock's time, and a reader
 // compares it with the first form; with no lock left, the kept one says
-// the plan was frozen once.
-func writeReplacedLocks(d *doc, st *lock.Status, w lockWords) {
+// the plan was frozen once. runsBefore: the output folder held runs made
+// under an earlier lock (writeUnderEarlierLocks lists them next).
+func writeReplacedLocks(d *doc, st *lock.Status, w lockWords, runsBefore bool) {
 	if len(st.Replaced) == 0 {
 		return
 	}
@@ -157,7 +164,11 @@ func writeReplacedLocks(d *doc, st *lock.Status, w lockWords) {
 	if st.State == lock.StateNone {
 		d.p("**An earlier lock of this plan is kept beside it** (`ordplan freeze --replace` kept it when the plan was frozen anew), but the lock itself (%s) is gone: the plan was registered, and its registration is no longer read. Put the lock back, or freeze the plan again.", mdCode(st.LockFile))
 	} else {
-		d.p("**Frozen anew.** The lock %s replaced an earlier lock of this plan (`ordplan freeze --replace`), kept beside it. The plan counts as registered only from the time of %s: what changed since the first lock was not fixed then, and this report cannot tell whether the data had been seen.", mdCode(st.LockFile), mdCode(st.LockFile))
+		known := "this report cannot tell whether the data had been seen"
+		if runsBefore {
+			known = "and this output folder held results of a run under an earlier lock before it was frozen anew (listed below)"
+		}
+		d.p("**Frozen anew.** The lock %s replaced an earlier lock of this plan (`ordplan freeze --replace`), kept beside it. The plan counts as registered only from the time of %s: what changed since the first lock was not fixed then, %s.", mdCode(st.LockFile), mdCode(st.LockFile), known)
 	}
 	d.list(items)
 }
@@ -208,5 +219,57 @@ func writeEarlierRegistered(d *doc, earlier []runner.EarlierRun) {
 		lead += fmt.Sprintf(", %d of them on the same data as this run", same)
 	}
 	d.p("%s: their results existed before this run departed from the plan, so the deviations above may have been chosen after seeing them. They are named by the SHA-256 of their decisions.json (in this folder's run.json or under earlier/):", lead)
+	d.list(items)
+}
+
+// writeUnderEarlierLocks names the runs the output folder held that were
+// made under another lock of the plan than its lock now: a lock that
+// freeze --replace replaced, or one since removed. Their results existed
+// before the plan was frozen anew, so they are not runs of the registered
+// plan, and a reader weighing the new lock needs to know of them. Each is
+// named by the SHA-256 of its decisions.json, with the lock it was run
+// under (canonical hash and time, from its run.json), apart from the runs
+// under the lock now (writeEarlierRegistered).
+func writeUnderEarlierLocks(d *doc, st *lock.Status, runs []runner.EarlierLockRun) {
+	if len(runs) == 0 {
+		return
+	}
+	items := make([]string, len(runs))
+	same := 0
+	for i, e := range runs {
+		data := "on other data (sha256 `" + short(e.DataSHA256) + "`)"
+		if e.SameData {
+			data = "on the same data"
+			same++
+		}
+		under := fmt.Sprintf("under the lock frozen at %s, canonical sha256 `%s`", e.LockFrozenAt, e.LockSHA256)
+		if e.LockRegistration != "" {
+			under += ", registration " + e.LockRegistration
+		}
+		if e.KeptAs != "" {
+			under += ", kept as " + mdCode(e.KeptAs)
+		} else {
+			under += ", a lock no longer kept beside the plan"
+		}
+		how := "the plan then matched it"
+		switch e.State {
+		case lock.StateDeviations:
+			how = "the plan then departed from it, each change with a stated reason"
+		case lock.StateUnexplained:
+			how = "the plan then departed from it with changes forced by `--allow-unregistered-changes`"
+		}
+		items[i] = fmt.Sprintf("decisions.json sha256 `%s`, %s; %s; %s", short(e.DecisionsSHA256), data, under, how)
+	}
+	lead := fmt.Sprintf("**This output folder already held %s made under an earlier lock of this plan**", words.Count(len(runs), "run", "runs"))
+	if same > 0 {
+		lead += fmt.Sprintf(", %d of them on the same data as this run", same)
+	}
+	var since string
+	if st.State == lock.StateNone {
+		since = "their results existed before the plan's lock was removed. They are runs of a registration the plan no longer has"
+	} else {
+		since = fmt.Sprintf("their results existed before the plan was frozen anew as %s, so the changes made in freezing it anew may have been chosen after seeing them. They are not runs of the registered plan, which counts only from the time of %s", mdCode(st.LockFile), mdCode(st.LockFile))
+	}
+	d.p("%s: %s. They are named by the SHA-256 of their decisions.json (in this folder's run.json or under earlier/), each with the lock its run.json records:", lead, since)
 	d.list(items)
 }

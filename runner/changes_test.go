@@ -290,6 +290,8 @@ func TestChangesOfRegistration(t *testing.T) {
 	forced := &RegistrationRecord{State: "unexplained", LockFile: "p.lock.json", FrozenAt: "2026-12-01T09:00:00Z", CanonicalSHA256: "aaaaaaaaaaaaaaaa",
 		Changes: []lock.Explained{{Change: lock.Change{Path: "rules[1].choose.by"}}}, AllowedUnexplained: true}
 	anew := &RegistrationRecord{State: "matches", LockFile: "p.lock.json", FrozenAt: "2026-12-01T09:00:00Z", CanonicalSHA256: "bbbbbbbbbbbbbbbb"}
+	anewKept := &RegistrationRecord{State: "matches", LockFile: "p.lock.json", FrozenAt: "2026-12-02T10:00:00Z", CanonicalSHA256: "bbbbbbbbbbbbbbbb",
+		ReplacedLocks: []lock.Replaced{{File: "p.lock.json.replaced-20261201T090000Z", FrozenAt: "2026-12-01T09:00:00Z", SHA256: "aaaaaaaaaaaaaaaa"}}}
 	for _, c := range []struct {
 		was, now *RegistrationRecord
 		want     string
@@ -298,6 +300,7 @@ func TestChangesOfRegistration(t *testing.T) {
 		{none, departs, "The plan's registration changed: in the earlier run the plan had no lock file (p.lock.json); in this run the plan departed from its lock p.lock.json (frozen 2026-12-01T09:00:00Z) in 2 keys (predictors, report.title), each with a stated reason."},
 		{departs, forced, "in this run the plan departed from its lock p.lock.json (frozen 2026-12-01T09:00:00Z) in 1 key (rules[1].choose.by), 1 without a stated reason (let through by --allow-unregistered-changes)."},
 		{matches, anew, "in the earlier run the plan matched its lock p.lock.json (frozen 2026-12-01T09:00:00Z), canonical sha256 aaaaaaaaaaaa...; in this run the plan matched its lock p.lock.json (frozen 2026-12-01T09:00:00Z), canonical sha256 bbbbbbbbbbbb..."},
+		{matches, anewKept, "in this run the plan matched its lock p.lock.json (frozen 2026-12-02T10:00:00Z). The plan was frozen anew between the two runs (the earlier run's lock is kept as p.lock.json.replaced-20261201T090000Z): the earlier run is not a run of the plan as registered now, whose registration counts from 2026-12-02T10:00:00Z."},
 		{matches, matches, ""},
 		{none, &RegistrationRecord{State: "none", LockFile: "q.lock.json"}, ""},
 		{nil, matches, ""}, // an earlier run that did not record it

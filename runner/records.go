@@ -304,6 +304,7 @@ func BuildDecisions(r *Result) *Decisions {
 		Notes:   nonNil(r.Notes), Registration: registrationRecord(r.Registration), Simulated: r.Simulated}
 	if d.Registration != nil {
 		d.Registration.EarlierRegistered = r.EarlierRegistered
+		d.Registration.UnderEarlierLocks = r.UnderEarlierLocks
 	}
 	sampling := r.Analysis != nil && r.Analysis.Errors.Sampling
 	for _, or := range r.Outcomes {

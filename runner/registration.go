@@ -27,6 +27,10 @@ type RegistrationRecord struct {
 	// EarlierRegistered: the earlier runs of the registered plan,
 	// unchanged, in the output folder of a run that departs from it.
 	EarlierRegistered []EarlierRun `json:"earlier_registered_runs,omitempty"`
+	// UnderEarlierLocks: the earlier runs in the output folder made under
+	// another lock of the plan than its lock now (one freeze --replace
+	// replaced, or one removed).
+	UnderEarlierLocks []EarlierLockRun `json:"runs_under_earlier_locks,omitempty"`
 }
 
 // EarlierRun is an earlier run of the registered plan, unchanged, found
@@ -51,21 +55,91 @@ func EarlierRegisteredRuns(st *lock.Status, dataHash string, records []RunRecord
 	var out []EarlierRun
 	for _, rec := range records {
 		g := rec.Registration
-		if rec.MadeBy != "" && rec.MadeBy != "run" || g == nil || g.State != lock.StateMatches || g.CanonicalSHA256 != st.Lock.SHA256 {
+		if g == nil || g.State != lock.StateMatches || g.CanonicalSHA256 != st.Lock.SHA256 {
 			continue
 		}
-		dec := rec.Outputs["decisions.json"]
-		if dec == "" || slices.ContainsFunc(out, func(e EarlierRun) bool { return e.DecisionsSHA256 == dec }) {
-			continue
+		if e, ok := earlierRun(rec, dataHash); ok && !slices.ContainsFunc(out, func(o EarlierRun) bool { return o.DecisionsSHA256 == e.DecisionsSHA256 }) {
+			out = append(out, e)
 		}
-		e := EarlierRun{DecisionsSHA256: dec}
-		if rec.Data != nil {
-			e.DataSHA256 = rec.Data.SHA256
-			e.SameData = rec.Data.SHA256 == dataHash
-		}
-		out = append(out, e)
 	}
 	slices.SortFunc(out, func(a, b EarlierRun) int { return strings.Compare(a.DecisionsSHA256, b.DecisionsSHA256) })
+	return out
+}
+
+// earlierRun names a run record of the folder by its decisions and data;
+// false for a record not made by run or without decisions.
+func earlierRun(rec RunRecord, dataHash string) (EarlierRun, bool) {
+	dec := rec.Outputs["decisions.json"]
+	if rec.MadeBy != "" && rec.MadeBy != "run" || dec == "" {
+		return EarlierRun{}, false
+	}
+	e := EarlierRun{DecisionsSHA256: dec}
+	if rec.Data != nil {
+		e.DataSHA256 = rec.Data.SHA256
+		e.SameData = rec.Data.SHA256 == dataHash
+	}
+	return e, true
+}
+
+// EarlierLockRun is an earlier run in the output folder made under a lock
+// of the plan other than its lock now: its results existed before the
+// plan was frozen anew (or before its lock was removed), so it is not a
+// run of the registered plan, and a reader needs it named with the lock
+// it was run under.
+type EarlierLockRun struct {
+	EarlierRun
+	// The lock the run was compared with, as its run.json recorded it.
+	LockFile         string `json:"lock_file"`
+	LockSHA256       string `json:"lock_canonical_sha256"`
+	LockFrozenAt     string `json:"lock_frozen_at"`
+	LockRegistration string `json:"lock_registration,omitempty"`
+	// KeptAs is the file freeze --replace kept that lock in (its
+	// canonical hash the same); "" when no kept lock beside the plan has it.
+	KeptAs string `json:"lock_kept_as,omitempty"`
+	// State is how that run's plan stood against that lock: matches,
+	// deviations or unexplained.
+	State string `json:"state"`
+}
+
+// EarlierLockRuns picks, from the run records an output folder holds,
+// the runs made (by run) under a lock of the plan other than st's lock:
+// a lock freeze --replace replaced, or one since removed. dataHash is
+// this run's data. Sorted by the time their lock was frozen, then by
+// their decisions' hash, each run once.
+func EarlierLockRuns(st *lock.Status, dataHash string, records []RunRecord) []EarlierLockRun {
+	if st == nil {
+		return nil
+	}
+	now := ""
+	if st.Lock != nil {
+		now = st.Lock.SHA256
+	}
+	var out []EarlierLockRun
+	for _, rec := range records {
+		g := rec.Registration
+		if g == nil || g.State == lock.StateNone || g.CanonicalSHA256 == "" || g.CanonicalSHA256 == now {
+			continue
+		}
+		e, ok := earlierRun(rec, dataHash)
+		if !ok || slices.ContainsFunc(out, func(o EarlierLockRun) bool { return o.DecisionsSHA256 == e.DecisionsSHA256 }) {
+			continue
+		}
+		r := EarlierLockRun{EarlierRun: e, LockFile: g.LockFile, LockSHA256: g.CanonicalSHA256, LockFrozenAt: g.FrozenAt,
+			LockRegistration: g.Registration, State: g.State}
+		for _, k := range st.Replaced {
+			if k.Error == "" && k.SHA256 == g.CanonicalSHA256 {
+				r.KeptAs = k.File
+				break
+			}
+		}
+		out = append(out, r)
+	}
+	slices.SortFunc(out, func(a, b EarlierLockRun) int {
+		if c := strings.Compare(a.LockFrozenAt, b.LockFrozenAt); c != 0 {
+			return c
+		}
+		return strings.Compare(a.DecisionsSHA256, b.DecisionsSHA256)
+	})
 	return out
 }
 
@@ -100,7 +174,18 @@ func registrationChange(was, now *RegistrationRecord) string {
 		w += fmt.Sprintf(", canonical sha256 %.12s...", was.CanonicalSHA256)
 		n += fmt.Sprintf(", canonical sha256 %.12s...", now.CanonicalSHA256)
 	}
-	return fmt.Sprintf("The plan's registration changed: in the earlier run %s; in this run %s.", w, n)
+	out := fmt.Sprintf("The plan's registration changed: in the earlier run %s; in this run %s.", w, n)
+	if was.CanonicalSHA256 != "" && now.CanonicalSHA256 != "" && was.CanonicalSHA256 != now.CanonicalSHA256 {
+		out += " The plan was frozen anew between the two runs"
+		for _, k := range now.ReplacedLocks {
+			if k.Error == "" && k.SHA256 == was.CanonicalSHA256 {
+				out += " (the earlier run's lock is kept as " + k.File + ")"
+				break
+			}
+		}
+		out += ": the earlier run is not a run of the plan as registered now, whose registration counts from " + now.FrozenAt + "."
+	}
+	return out
 }
 
 // registrationPhrase words a run's registration for registrationChange.

@@ -39,6 +39,10 @@ type Result struct {
 	// it (EarlierRegisteredRuns): results of the registered plan existed
 	// before the deviations were run.
 	EarlierRegistered []EarlierRun
+	// UnderEarlierLocks are the earlier runs that the output folder holds
+	// made under another lock of the plan than its lock now
+	// (EarlierLockRuns): results that existed before it was frozen anew.
+	UnderEarlierLocks []EarlierLockRun
 	// Simulated is set when the data were simulated (ordplan rehearse).
 	Simulated *Simulation
 	// Analysis is the plan resolved: how the data were read, the fit

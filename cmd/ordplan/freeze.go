@@ -5,6 +5,7 @@ import (
 	"flag"
 	"fmt"
 	"io"
+	"slices"
 	"strings"
 	"time"
 
@@ -126,6 +127,33 @@ func printRegistration(w io.Writer, st *lock.Status, changes bool) {
 	for _, r := range st.Replaced {
 		fmt.Fprintf(w, "note: %s\n", st.ReplacedNote(r))
 	}
+}
+
+// earlierLocksNote says, after run's registration lines, that the output
+// folder held runs made under another lock of the plan than its lock now
+// (runner.EarlierLockRuns), which the report lists: "" when it held none.
+func earlierLocksNote(st *lock.Status, runs []runner.EarlierLockRun) string {
+	if len(runs) == 0 {
+		return ""
+	}
+	var locks []string
+	for _, r := range runs {
+		l := "frozen " + r.LockFrozenAt
+		if r.KeptAs != "" {
+			l += ", kept as " + r.KeptAs
+		} else {
+			l += ", no longer kept beside the plan"
+		}
+		if !slices.Contains(locks, l) {
+			locks = append(locks, l)
+		}
+	}
+	since := "before the plan was frozen anew, and they are not runs of the registered plan, which counts only from " + st.LockFile + "'s time"
+	if st.State == lock.StateNone {
+		since = "before the plan's lock (" + st.LockFile + ") was removed"
+	}
+	return fmt.Sprintf("the output folder held %s made under an earlier lock of this plan (%s): their results existed %s; the report lists them",
+		words.Count(len(runs), "run", "runs"), strings.Join(locks, "; "), since)
 }
 
 // registrationLine is the one-line summary check and run print.

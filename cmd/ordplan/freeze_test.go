@@ -3,6 +3,7 @@ package main
 import (
 	"crypto/sha256"
 	"encoding/hex"
+	"encoding/json"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -132,4 +133,100 @@ func TestDeviationsNameEarlierRegisteredRuns(t *testing.T) {
 	if md, _ := run(filepath.Join(dir, "fresh")); !strings.Contains(md, "This output folder held no earlier run of the registered plan unchanged") {
 		t.Errorf("a fresh folder:\n%s", md)
 	}
+}
+
+// A plan frozen, run, frozen anew with a change (freeze --replace) and run
+// again in the same folder: the runs made under the earlier lock are not
+// runs of the registered plan. The second run's stdout, report and
+// decisions.json name them, each with the lock it was run under (its
+// canonical hash and time, the file freeze --replace kept it in), apart
+// from the runs under the lock now; a run of the new lock that departs
+// from it lists both; --previous says the plan was frozen anew between the
+// two runs. Rerunning writes the same bytes.
+func TestRunsUnderEarlierLocksListed(t *testing.T) {
+	dir, planPath, src := deviationStudy(t)
+	if out, errs, code := runCLI("freeze", planPath, "--registration", "REG 14"); code != 0 {
+		t.Fatalf("freeze: %d %s %s", code, out, errs)
+	}
+	first, _ := os.ReadFile(filepath.Join(dir, "p.lock.json"))
+	o := filepath.Join(dir, "out")
+	run := func(args ...string) (string, string, string) {
+		out, errs, code := runCLI(append([]string{"run", planPath, "--out", o, "--quiet"}, args...)...)
+		if code != 0 {
+			t.Fatalf("run: %d %s %s", code, out, errs)
+		}
+		md, _ := os.ReadFile(filepath.Join(o, "report.md"))
+		dec, _ := os.ReadFile(filepath.Join(o, "decisions.json"))
+		return out, string(md), string(dec)
+	}
+	_, _, registered := run()
+	sum := sha256.Sum256([]byte(registered))
+	decHash := hex.EncodeToString(sum[:])
+	firstHash := jsonField(t, first, "canonical_sha256")
+	firstAt := jsonField(t, first, "frozen_at")
+	kept := "p.lock.json.replaced-" + strings.NewReplacer("-", "", ":", "").Replace(firstAt)
+
+	os.WriteFile(planPath, []byte(strings.Replace(src, "{by: aic}", "{by: bic}", 1)), 0o644)
+	if out, errs, code := runCLI("freeze", planPath, "--replace"); code != 0 {
+		t.Fatalf("freeze --replace: %d %s %s", code, out, errs)
+	}
+	second, _ := os.ReadFile(filepath.Join(dir, "p.lock.json"))
+	secondAt := jsonField(t, second, "frozen_at")
+	prev := filepath.Join(dir, "prev")
+	os.CopyFS(prev, os.DirFS(o))
+	out, md, dec := run("--previous", prev)
+	for _, s := range []string{
+		"note: the output folder held 1 run made under an earlier lock of this plan (frozen " + firstAt + ", kept as " + kept + "): their results existed before the plan was frozen anew, and they are not runs of the registered plan, which counts only from p.lock.json's time; the report lists them\n",
+		"The plan was frozen anew between the two runs (the earlier run's lock is kept as " + kept + "): the earlier run is not a run of the plan as registered now, whose registration counts from " + secondAt + ".",
+	} {
+		if !strings.Contains(out, s) {
+			t.Errorf("stdout lacks %q:\n%s", s, out)
+		}
+	}
+	item := "- decisions.json sha256 `" + decHash[:12] + "`, on the same data; under the lock frozen at " + firstAt + ", canonical sha256 `" + firstHash + "`, registration REG 14, kept as `" + kept + "`; the plan then matched it"
+	for _, s := range []string{
+		"**This output folder already held 1 run made under an earlier lock of this plan**, 1 of them on the same data as this run: their results existed before the plan was frozen anew as `p.lock.json`",
+		"They are not runs of the registered plan, which counts only from the time of `p.lock.json`.",
+		item,
+	} {
+		if !strings.Contains(md, s) {
+			t.Errorf("report.md lacks %q:\n%s", s, md)
+		}
+	}
+	for _, s := range []string{`"runs_under_earlier_locks": [`, `"decisions_sha256": "` + decHash + `"`, `"lock_canonical_sha256": "` + firstHash + `"`,
+		`"lock_frozen_at": "` + firstAt + `"`, `"lock_kept_as": "` + kept + `"`, `"lock_registration": "REG 14"`} {
+		if !strings.Contains(dec, s) {
+			t.Errorf("decisions.json lacks %s:\n%.3000s", s, dec)
+		}
+	}
+	if strings.Contains(dec, "earlier_registered_runs") {
+		t.Errorf("a run under the earlier lock is counted as a run of the registered plan:\n%.3000s", dec)
+	}
+	if _, md2, dec2 := run("--previous", prev); md2 != md || dec2 != dec {
+		t.Error("a rerun changed the report or decisions.json")
+	}
+	// A departure from the new lock: the runs under it and those under the
+	// earlier lock, each in its own list.
+	os.WriteFile(planPath, []byte(strings.Replace(strings.Replace(src, "{by: aic}", "{by: bic}", 1), "[lr]", "[lr, brant]", 1)+
+		"deviations:\n  - key: tests.parallel_lines\n    reason: the Brant test as well\n"), 0o644)
+	_, md, _ = run()
+	for _, s := range []string{"**This output folder already held 1 run of the registered plan unchanged**", "**This output folder already held 1 run made under an earlier lock of this plan**", item} {
+		if !strings.Contains(md, s) {
+			t.Errorf("departing run: report.md lacks %q:\n%s", s, md)
+		}
+	}
+}
+
+// jsonField is a top-level string field of a JSON object.
+func jsonField(t *testing.T, b []byte, key string) string {
+	t.Helper()
+	var m map[string]any
+	if err := json.Unmarshal(b, &m); err != nil {
+		t.Fatal(err)
+	}
+	s, _ := m[key].(string)
+	if s == "" {
+		t.Fatalf("no %s in %s", key, b)
+	}
+	return s
 }

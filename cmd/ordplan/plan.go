@@ -155,7 +155,11 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	res.Registration = reg
 	// Runs of the registered plan, unchanged, that this folder already
 	// holds: results that existed before these deviations were run.
-	res.EarlierRegistered = runner.EarlierRegisteredRuns(reg, res.DataHash, folderRecords(dir))
+	records := folderRecords(dir)
+	res.EarlierRegistered = runner.EarlierRegisteredRuns(reg, res.DataHash, records)
+	// Runs made under another lock of the plan (one replaced or removed):
+	// results that existed before it was frozen anew.
+	res.UnderEarlierLocks = runner.EarlierLockRuns(reg, res.DataHash, records)
 	dec := runner.BuildDecisions(res)
 	var changes []string
 	if prev != nil {
@@ -170,6 +174,9 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 		return fail(stderr, err)
 	}
 	printRegistration(stdout, reg, false)
+	if n := earlierLocksNote(reg, res.UnderEarlierLocks); n != "" {
+		fmt.Fprintf(stdout, "note: %s\n", n)
+	}
 	code = exitOK
 	for _, o := range dec.Outcomes {
 		switch {
