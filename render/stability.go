@@ -96,6 +96,7 @@ func writeStability(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		d.p("In %d of %d %s the procedure failed as a whole (the %s's data could not be fitted at all), counted apart from those where the rules chose nothing. The reasons met first, each once (at most %d, as the %s's own fit gave them):", st.Failed.Count, st.Resamples, many, one, runner.MaxStabilityFailures, one)
 		d.list(words.Each(st.Failures, mdText))
 	}
+	writeRedrawn(d, st)
 
 	// Which rule rejected which model.
 	rows = nil
@@ -162,6 +163,51 @@ func writeStability(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		return
 	}
 	d.p("Assumptions and limits of this study: it is a bootstrap of a selection procedure on the %s used, so every resample resembles these data, not a new sample from the population; the shares are estimates, with the Monte Carlo error in brackets from %d resamples and a sampling error from the data themselves that the brackets do not show. A resample repeats units, and a model that fits the data only roughly fits a resample more roughly still: a test of a restriction tends to give a larger statistic in a resample (in large samples, when the less constrained model fits, about a noncentral chi-squared on the test's degrees of freedom with the data's statistic as its noncentrality, so on average the data's statistic plus its degrees of freedom), so tests reject restrictions more often in resamples than they would in new samples where the restriction holds, and the shares lean towards the less constrained models. A small share for the model the primary analysis chose means that data slightly different would have led the same rules to another model; when a test kept the choice with a statistic close enough to its critical value that this noncentral chi-squared lies mostly beyond it, that lean alone makes the share small, and the share then tells how near the rule's margin the choice sits rather than how often a new study would repeat it. Either way the chosen model's intervals, which treat it as fixed in advance, leave that uncertainty out.", unitWord(st), st.Resamples)
+}
+
+// writeRedrawn says how many bootstrap draws were set aside and drawn
+// again because they lacked a category of the outcome, a level of a
+// categorical predictor or a combination of levels an interaction reads
+// that the data hold (runner.Stability.SetAside), what they lacked most
+// often, and what that conditioning does to the shares. Nothing when no
+// draw was set aside and no unit alone holds such a value.
+func writeRedrawn(d *doc, st *runner.Stability) {
+	if simulatedDraw(st) || st.MaxDraws == 0 || (st.SetAside == 0 && st.AlwaysDrawn == 0) || st.AlwaysDrawn >= st.Units {
+		return
+	}
+	s := fmt.Sprintf("A resample must hold every category of the outcome, every level of each categorical predictor and every combination of levels that an interaction of categorical predictors reads, as the data do, or the same models cannot be fitted to it: a draw lacking one was set aside and another drawn from the resample's own stream (at most %d for one resample), and a draw that lacks nothing is kept as the plain bootstrap draws it.", st.MaxDraws)
+	if st.SetAside == 0 {
+		s += " No draw lacked one here."
+	} else {
+		var lacked []string
+		for _, l := range st.Lacking {
+			lacked = append(lacked, fmt.Sprintf("%s (%d draw%s)", l.What, l.Draws, plural(l.Draws)))
+		}
+		s += fmt.Sprintf(" Here %d of the %d resamples needed another draw, with %d draw%s set aside in all; what they lacked most often: %s.", st.Redrawn, st.Resamples, st.SetAside, plural(st.SetAside), words.AndList(lacked))
+	}
+	s += " The shares are therefore those of a bootstrap conditional on all of these appearing"
+	if st.AlwaysDrawn > 0 {
+		verb, them := "hold", "them"
+		if st.AlwaysDrawn == 1 {
+			verb, them = "holds", "it"
+		}
+		s += fmt.Sprintf(": %d of the %d %s alone %s one of them, so every resample kept draws %s, and the effects that rest on %s vary across resamples less than they would across new samples.",
+			st.AlwaysDrawn, st.Units, unitNoun(st), verb, them, them)
+	} else {
+		s += "."
+	}
+	d.p("%s", mdText(s))
+}
+
+// unitNoun names the resampled units, plural, without their number.
+func unitNoun(st *runner.Stability) string {
+	switch st.Unit {
+	case runner.UnitClusters:
+		return "clusters"
+	case runner.UnitWeighted:
+		return "frequency-weighted units"
+	}
+	return "rows"
 }
 
 // simulatedDraw says whether st's outcomes were drawn from the chosen
@@ -260,7 +306,7 @@ func failedReading(st *runner.Stability, primary *runner.StabilityModel, many st
 	ran := st.Resamples - st.Failed.Count
 	cause := ""
 	if !simulatedDraw(st) {
-		cause = " (a level of a categorical predictor that few rows or clusters hold is often it: a resample without them cannot estimate its effect, and levels that are the clusters themselves fail whenever a cluster is left out)"
+		cause = fmt.Sprintf(" (a level of a categorical predictor that few rows or clusters hold can be it: a draw without them is drawn again, at most %d times, and when every cluster is a level of its own no resample can differ from the data)", runner.MaxStabilityDraws)
 	}
 	return fmt.Sprintf(" But the procedure failed as a whole in %d of %d %s (the reasons are below), so this share says how often it could be run on such data, not how stable the choice is: of the %d where it ran, it chose %s in %d. Remove the cause of the failures before reading the share%s.",
 		st.Failed.Count, st.Resamples, many, ran, primary.Model, primary.Chosen.Count, cause)
@@ -390,6 +436,9 @@ func stabilityCSV(or *runner.OutcomeResult) (head []string, rows [][]string, ok 
 	}
 	row("none_chosen", "", "", "", "", st.None, or.Chosen == nil, nil, nil)
 	row("failed", "", "", "", "", st.Failed, false, nil, nil)
+	if st.SetAside > 0 {
+		row("redrawn", "", "", "", "", runner.RateOf(st.Redrawn, st.Resamples), false, nil, nil)
+	}
 	for _, ru := range st.Rules {
 		for _, ms := range ru.Rejected {
 			row("rejected_by_rule", strconv.Itoa(ru.Number), ru.Kind, ms.Model, "", ms.Share, false, nil, nil)
@@ -414,8 +463,11 @@ func stabilityMethods(r *runner.Result, or *runner.OutcomeResult) string {
 		return fmt.Sprintf("How often the decision procedure recovers the chosen model was assessed, as the plan fixed in advance, by drawing new outcomes %d times from %s with its estimates at the %d rows used (predictors, weights, offsets and clusters kept; seed %d), repeating the whole decision procedure (grid, tests and rules, in order) on each simulated set with the terms' constants kept from the primary analysis, and reporting how often each model was chosen (with its Monte Carlo standard error), how often each rule rejected each model and how often each hypothesis was rejected in the model chosen there.", st.Resamples, st.Primary, st.Units, st.Seed)
 	}
 	anew := ""
+	if st.SetAside > 0 {
+		anew = "; a draw lacking a category of the outcome, or a level or combination of levels of the categorical predictors, that the data hold was drawn again, so the resamples are conditional on each appearing"
+	}
 	if st.Imputed {
-		anew = "; each resample of the rows as read was imputed anew with the same settings before the procedure: bootstrap, then impute"
+		anew += "; each resample of the rows as read was imputed anew with the same settings before the procedure: bootstrap, then impute"
 	}
 	return fmt.Sprintf("The stability of the model choice was assessed, as the plan fixed in advance, by repeating the whole decision procedure (grid, tests and rules, in order) on %d nonparametric bootstrap resamples of the %s used (seed %d%s), the terms' constants kept from the primary analysis, and reporting how often each model was chosen (with its Monte Carlo standard error), how often each rule rejected each model and how often each hypothesis was rejected in the model chosen in the resample.", st.Resamples, unitWord(st), st.Seed, anew)
 }

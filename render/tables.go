@@ -475,7 +475,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		if simulatedDraw(or.Stability) {
 			about = "the model choice over the sets of outcomes selection_stability (draw: chosen_model) simulated from the chosen model at the rows used, where a resample is a simulated set:"
 		}
-		add("stability", about+" what is chosen (each model), none_chosen or failed, rejected_by_rule (rule number and kind, model; for the last rule, not chosen) or hypothesis_rejected (in the model chosen in the resample, with the percentile interval of the estimate of a single restriction); count (resamples) of of (all resamples), share, its Monte Carlo standard error mc_se, primary_choice true for the primary analysis's choice", head, rows)
+		add("stability", about+" what is chosen (each model), none_chosen or failed, redrawn (resamples for which a draw lacking a category or level of the data was set aside and another drawn; only when some were), rejected_by_rule (rule number and kind, model; for the last rule, not chosen) or hypothesis_rejected (in the model chosen in the resample, with the percentile interval of the estimate of a single restriction); count (resamples) of of (all resamples), share, its Monte Carlo standard error mc_se, primary_choice true for the primary analysis's choice", head, rows)
 	}
 	return out
 }

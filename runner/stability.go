@@ -66,6 +66,27 @@ type Stability struct {
 	// were simulated from the primary analysis's chosen model at the rows
 	// used ("" for bootstrap resamples, the default).
 	Draw string `json:"draw,omitempty"`
+	// Redrawn counts the resamples for which at least one draw was set
+	// aside and drawn again because it lacked a category of the outcome,
+	// a level of a categorical predictor or a combination of levels an
+	// interaction reads that the data hold (resampleNeeds); SetAside is
+	// the draws set aside in all, Lacking what they lacked most often
+	// (at most MaxStabilityFailures, each with the draws that lacked
+	// it), MaxDraws the draws a resample may take. AlwaysDrawn counts
+	// the units that alone hold such a value, so that every resample
+	// kept draws them.
+	Redrawn     int             `json:"redrawn_resamples"`
+	SetAside    int             `json:"draws_set_aside"`
+	Lacking     []StabilityLack `json:"draws_lacked,omitempty"`
+	MaxDraws    int             `json:"max_draws_per_resample,omitempty"`
+	AlwaysDrawn int             `json:"units_always_drawn,omitempty"`
+}
+
+// StabilityLack is one thing draws set aside lacked ("site = z") and how
+// many draws lacked it.
+type StabilityLack struct {
+	What  string `json:"what"`
+	Draws int    `json:"draws"`
 }
 
 // StabilityModel is how often one candidate was chosen.
@@ -111,7 +132,10 @@ type StabilityHypothesis struct {
 
 // stabilityPass is what one resample of one outcome gave.
 type stabilityPass struct {
-	failed   string // the procedure failed entirely: why
+	failed string // the procedure failed entirely: why
+	// lacked is what each draw set aside before the resample lacked
+	// (drawResample).
+	lacked   [][]string
 	chosen   string
 	fallback bool
 	rejected map[[2]string]bool // (rule index, model) -> rejected
@@ -154,6 +178,12 @@ func resampleUnit(ds *data.Dataset) (string, int) {
 // resample is the same whatever the workers.
 func Resample(ds *data.Dataset, rng *rand.Rand) *data.Dataset {
 	rows, weights, cluster := resampleRows(ds, rng)
+	return resampleOf(ds, rows, weights, cluster)
+}
+
+// resampleOf is the data set of ds's rows drawn (resampleRows), with
+// their weights and cluster ids.
+func resampleOf(ds *data.Dataset, rows []int, weights []float64, cluster []string) *data.Dataset {
 	out := *ds
 	out.N = len(rows)
 	out.Y = make([]int, len(rows))
@@ -280,10 +310,12 @@ func resampleRows(ds *data.Dataset, rng *rand.Rand) (rows []int, weights []float
 // bootstrap resamples of whole clusters (data.cluster set, draw:
 // bootstrap), of the levels of categorical predictors whose rows all lie
 // in one cluster (levelsInOneCluster, every level of every coding): a
-// resample that does not draw that cluster has no row of the level, its
-// column cannot be estimated, and the resample fails as a whole. It names
-// the levels and gives the share of resamples expected to lose at least
-// one of them (missingClusterShare), or returns "".
+// draw that leaves that cluster out has no row of the level, so it is set
+// aside and drawn again (drawResample), and every resample kept draws
+// the cluster. It names the levels and gives the share of draws expected
+// to be set aside (missingClusterShare); when every cluster holds such a
+// level, no resample can differ from the data and the study fails. ""
+// when there is no such level.
 func (a *Analysis) StabilityLevels(r Reading, ds *data.Dataset) string {
 	st := a.Stability
 	if st == nil || st.Draw == plan.StabilityChosenModel || len(ds.Cluster) == 0 || a.Imputed != nil {
@@ -294,19 +326,28 @@ func (a *Analysis) StabilityLevels(r Reading, ds *data.Dataset) string {
 		return ""
 	}
 	G := ClusterCount(ds)
+	each := ""
+	if len(found) > 1 {
+		each = " each"
+	}
+	head := fmt.Sprintf("selection_stability: the bootstrap draws whole clusters of %q, and the rows of %s lie in one cluster%s: a draw that leaves that cluster out has no row of the level, so its column cannot be estimated",
+		r.Options.Cluster, words.Some(found, 3), each)
+	advice := "To avoid this, merge such levels with others or leave the term out, or use selection_stability.draw: chosen_model, which keeps the rows used"
+	if len(clusters) >= G {
+		return fmt.Sprintf("%s; every one of the %d clusters holds such a level, so a resample holding every level is the data again, and no resample is drawn (the study reports every resample as failed). %s", head, G, advice)
+	}
 	share := missingClusterShare(G, len(clusters))
 	held := fmt.Sprintf("%d such clusters of %d, each", len(clusters), G)
 	if len(clusters) == 1 {
 		held = fmt.Sprintf("1 such cluster of %d,", G)
 	}
-	lost := fmt.Sprintf("%s left out of a resample with probability (1-1/%d)^%d = %.2f", held, G, G, math.Pow(1-1/float64(G), float64(G)))
-	each := ""
-	if len(found) > 1 {
-		each = " each"
+	lost := fmt.Sprintf("%s left out of a draw with probability (1-1/%d)^%d = %.2f", held, G, G, math.Pow(1-1/float64(G), float64(G)))
+	them := "those clusters"
+	if len(clusters) == 1 {
+		them = "that cluster"
 	}
-	return fmt.Sprintf("selection_stability: the bootstrap draws whole clusters of %q, and the rows of %s lie in one cluster%s: a resample that does not draw that cluster has no row of the level, so its column cannot be estimated and the resample fails as a whole; about %.1f%% of the %d resamples are expected to fail for this alone (%s), and the shares of the choice then rest on the others. "+
-		"To avoid it, merge such levels with others or leave the term out, or use selection_stability.draw: chosen_model, which keeps the rows used",
-		r.Options.Cluster, words.Some(found, 3), each, 100*share, st.Resamples, lost)
+	return fmt.Sprintf("%s. Such a draw is set aside and another drawn (at most %d for one resample), so every resample kept draws %s (a bootstrap conditional on each level appearing) and the effects of those levels vary across resamples less than they would across new samples; about %.1f%% of the draws are expected to be set aside (%s). %s",
+		head, MaxStabilityDraws, them, 100*share, lost, advice)
 }
 
 // missingClusterShare is the probability that a resample of G clusters
@@ -356,6 +397,12 @@ func runStability(an *Analysis, res *Result, opt Options) {
 	for _, or := range res.Outcomes {
 		or.Design.SourceScales() // taken once, before the resamples share it
 	}
+	needs := make([]*resampleNeeds, len(res.Outcomes))
+	for oi, or := range res.Outcomes {
+		if st.Draw != plan.StabilityChosenModel {
+			needs[oi] = needsOf(or.Design, resampled(or), or.Outcome.Column)
+		}
+	}
 	passes := make([][]stabilityPass, st.Resamples) // [r][outcome]
 	var wg sync.WaitGroup
 	var mu sync.Mutex
@@ -372,7 +419,7 @@ func runStability(an *Analysis, res *Result, opt Options) {
 				if r >= st.Resamples {
 					return
 				}
-				passes[r] = resamplePasses(an, res, r, st.Seed)
+				passes[r] = resamplePasses(an, res, needs, r, st.Seed)
 				mu.Lock()
 				done++
 				if opt.Resampled != nil {
@@ -388,13 +435,13 @@ func runStability(an *Analysis, res *Result, opt Options) {
 		for r := range ps {
 			ps[r] = passes[r][oi]
 		}
-		or.Stability = summarizeStability(an, or, ps, st)
+		or.Stability = summarizeStability(an, or, ps, st, needs[oi])
 	}
 }
 
 // resamplePasses runs resample r of every outcome, then corrects the
 // hypotheses' p-values for multiplicity over the outcomes as the run does.
-func resamplePasses(an *Analysis, res *Result, r int, seed uint64) []stabilityPass {
+func resamplePasses(an *Analysis, res *Result, needs []*resampleNeeds, r int, seed uint64) []stabilityPass {
 	out := make([]stabilityPass, len(res.Outcomes))
 	sub := &Result{Plan: res.Plan, Analysis: an}
 	for oi, or := range res.Outcomes {
@@ -405,7 +452,8 @@ func resamplePasses(an *Analysis, res *Result, r int, seed uint64) []stabilityPa
 		case imputesResamples(or):
 			resample = resampleImputedOutcome
 		}
-		ror, err := resample(an, an.Outcomes[oi], or, resampleRNG(seed, oi, r))
+		ror, lacked, err := resample(an, an.Outcomes[oi], or, needs[oi], resampleRNG(seed, oi, r))
+		out[oi].lacked = lacked
 		if err != "" {
 			out[oi].failed = err
 			ror = &OutcomeResult{Outcome: or.Outcome}
@@ -418,7 +466,7 @@ func resamplePasses(an *Analysis, res *Result, r int, seed uint64) []stabilityPa
 		if out[oi].failed != "" {
 			continue
 		}
-		p := stabilityPass{rejected: map[[2]string]bool{}}
+		p := stabilityPass{rejected: map[[2]string]bool{}, lacked: out[oi].lacked}
 		if ror.Chosen != nil {
 			p.chosen, p.fallback = ror.Chosen.ID, ror.Fallback
 		}
@@ -459,21 +507,27 @@ func resamplePasses(an *Analysis, res *Result, r int, seed uint64) []stabilityPa
 // runs the decision procedure and the hypotheses on it, with the primary
 // analysis's design (its constants frozen there). A non-empty reason says
 // the procedure failed entirely (an internal error included).
-func resampleOutcome(an *Analysis, rd Reading, primary *OutcomeResult, rng *rand.Rand) (or *OutcomeResult, failed string) {
+func resampleOutcome(an *Analysis, rd Reading, primary *OutcomeResult, n *resampleNeeds, rng *rand.Rand) (or *OutcomeResult, lacked [][]string, failed string) {
 	defer internalFailure(&or, &failed)
-	return decideDrawn(an, rd, primary, Resample(primary.Data, rng))
+	ds, lacked, failed := drawResample(primary.Data, n, rng)
+	if failed != "" {
+		return nil, lacked, failed
+	}
+	or, failed = decideDrawn(an, rd, primary, ds)
+	return or, lacked, failed
 }
 
 // simulatedOutcome draws one set of outcomes from the primary analysis's
 // chosen model at its rows (SimulateChosen) and runs the decision
 // procedure and the hypotheses on it, as resampleOutcome does.
-func simulatedOutcome(an *Analysis, rd Reading, primary *OutcomeResult, rng *rand.Rand) (or *OutcomeResult, failed string) {
+func simulatedOutcome(an *Analysis, rd Reading, primary *OutcomeResult, _ *resampleNeeds, rng *rand.Rand) (or *OutcomeResult, _ [][]string, failed string) {
 	defer internalFailure(&or, &failed)
 	ds, err := SimulateChosen(primary, rng)
 	if err != nil {
-		return nil, err.Error()
+		return nil, nil, err.Error()
 	}
-	return decideDrawn(an, rd, primary, ds)
+	or, failed = decideDrawn(an, rd, primary, ds)
+	return or, nil, failed
 }
 
 // SimulateChosen draws new outcomes at the rows the primary analysis used
@@ -594,25 +648,28 @@ func resampled(or *OutcomeResult) *data.Dataset {
 // settings and a seed drawn from the resample's stream, and runs the
 // decision procedure on the pooled fits (decideImputed) with the primary
 // analysis's design, then the hypotheses.
-func resampleImputedOutcome(an *Analysis, rd Reading, primary *OutcomeResult, rng *rand.Rand) (or *OutcomeResult, failed string) {
+func resampleImputedOutcome(an *Analysis, rd Reading, primary *OutcomeResult, n *resampleNeeds, rng *rand.Rand) (or *OutcomeResult, lacked [][]string, failed string) {
 	defer internalFailure(&or, &failed)
-	ds := Resample(primary.Observed, rng)
+	ds, lacked, failed := drawResample(primary.Observed, n, rng)
+	if failed != "" {
+		return nil, lacked, failed
+	}
 	run, sets, dz, err := imputeChained(an, rd, ds, rng.Uint64(), primary.Design, Options{Workers: 1})
 	if err != nil {
-		return nil, err.Error()
+		return nil, lacked, err.Error()
 	}
 	run.obs = completeObs(run.Sets[0], an.Errors.Sampling)
 	first := *sets[0]
 	or = &OutcomeResult{Outcome: primary.Outcome, Data: &first, Observed: ds, FitData: run.Sets[0], Design: dz, Terms: primary.Terms, dataOptions: primary.dataOptions, Imputed: run}
 	if err := decideImputed(an, rd, or, sets, Options{Workers: 1}); err != nil {
-		return nil, err.Error()
+		return nil, lacked, err.Error()
 	}
 	testHypotheses(an, or)
-	return or, ""
+	return or, lacked, ""
 }
 
 // summarizeStability turns the passes of one outcome into its shares.
-func summarizeStability(an *Analysis, or *OutcomeResult, ps []stabilityPass, st *plan.SelectionStability) *Stability {
+func summarizeStability(an *Analysis, or *OutcomeResult, ps []stabilityPass, st *plan.SelectionStability, needs *resampleNeeds) *Stability {
 	R := len(ps)
 	unit, units := resampleUnit(resampled(or))
 	s := &Stability{Imputed: imputesResamples(or), Resamples: R, Seed: st.Seed, Unit: unit, Units: units, Alpha: 1 - an.Level, Level: an.Level}
@@ -621,6 +678,30 @@ func summarizeStability(an *Analysis, or *OutcomeResult, ps []stabilityPass, st 
 	}
 	if or.Chosen != nil {
 		s.Primary = or.Chosen.ID
+	}
+	if needs != nil {
+		s.MaxDraws, s.AlwaysDrawn = MaxStabilityDraws, needs.forced
+		lacks := map[string]int{}
+		var order []string
+		for _, p := range ps {
+			if len(p.lacked) > 0 {
+				s.Redrawn++
+			}
+			s.SetAside += len(p.lacked)
+			for _, l := range p.lacked {
+				for _, w := range l {
+					if lacks[w] == 0 {
+						order = append(order, w)
+					}
+					lacks[w]++
+				}
+			}
+		}
+		// Most often first; ties in the order first met.
+		sort.SliceStable(order, func(i, j int) bool { return lacks[order[i]] > lacks[order[j]] })
+		for _, w := range order[:min(len(order), MaxStabilityFailures)] {
+			s.Lacking = append(s.Lacking, StabilityLack{What: w, Draws: lacks[w]})
+		}
 	}
 	var models []string
 	for _, f := range or.Fits {

@@ -292,14 +292,12 @@ func TestResampleDraws(t *testing.T) {
 	}
 }
 
-// TestStabilityCountsFailedResamples: a level of a categorical predictor
-// held by one row of 120 is missing from about a third of the resamples
-// ((1 - 1/120)^120), whose design then cannot be fitted: those resamples
-// count as failed, with the reason, and every resample is counted once.
-// Invented data: x ~ N(0, 1), g a or b at random but "rare" in row 6, y
-// from two thresholds of x plus noise (seed 3).
-func TestStabilityCountsFailedResamples(t *testing.T) {
-	dir := t.TempDir()
+// rareLevelData writes the invented data of the redraw tests to d.csv in
+// dir: 120 rows, x ~ N(0, 1), g a or b at random but "rare" in row 6, y
+// from two thresholds of x plus noise (seed 3); with the plan of y on x
+// and g it returns.
+func rareLevelData(t *testing.T, dir string) *plan.Plan {
+	t.Helper()
 	rng := rand.New(rand.NewPCG(3, 3))
 	var b strings.Builder
 	b.WriteString("y,x,g\n")
@@ -332,7 +330,18 @@ func TestStabilityCountsFailedResamples(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	res, err := Run(p, Options{Workers: 2})
+	return p
+}
+
+// TestStabilityRedrawsLackingLevels: a level of a categorical predictor
+// held by one row of 120 is missing from a draw with probability
+// (1 - 1/120)^120 = 0.3664 (by hand); such draws are set aside and drawn
+// again, so no resample fails, every resample is counted once, and the
+// count of resamples redrawn and draws set aside is kept with what they
+// lacked (g = rare), the one row that holds it counted as always drawn.
+func TestStabilityRedrawsLackingLevels(t *testing.T) {
+	dir := t.TempDir()
+	res, err := Run(rareLevelData(t, dir), Options{Workers: 2})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -341,8 +350,63 @@ func TestStabilityCountsFailedResamples(t *testing.T) {
 	for _, m := range st.Models {
 		total += m.Chosen.Count
 	}
-	if total != 30 || st.Failed.Count == 0 || st.Failed.Count > 20 || len(st.Failures) == 0 || !strings.Contains(st.Failures[0], "g.rare") {
+	t.Logf("redrawn %d, set aside %d, lacking %+v", st.Redrawn, st.SetAside, st.Lacking)
+	if total != 30 || st.Failed.Count != 0 || len(st.Failures) != 0 {
 		t.Errorf("%d resamples counted, %d failed: %q", total, st.Failed.Count, st.Failures)
+	}
+	if st.Redrawn == 0 || st.Redrawn > 20 || st.SetAside < st.Redrawn || len(st.Lacking) == 0 || st.Lacking[0].What != "g = rare" ||
+		st.MaxDraws != MaxStabilityDraws || st.AlwaysDrawn != 1 {
+		t.Errorf("redrawn %d, set aside %d, lacking %+v, max draws %d, always drawn %d", st.Redrawn, st.SetAside, st.Lacking, st.MaxDraws, st.AlwaysDrawn)
+	}
+}
+
+// TestDrawResampleConditional: drawResample keeps a draw that lacks
+// nothing as the plain bootstrap draws it (the same rows from the same
+// stream), and sets aside the others: over 4000 first draws of the rare
+// level's data the share lacking g = rare is within 4 standard errors of
+// (1 - 1/120)^120 = 0.36637 (by hand), and every resample kept holds the
+// rare row; a data set whose every row holds a value alone (three rows,
+// three categories) cannot vary and fails at once.
+func TestDrawResampleConditional(t *testing.T) {
+	dir := t.TempDir()
+	res, err := Run(rareLevelData(t, dir), Options{Workers: 1, NoStability: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	or := res.Outcomes[0]
+	n := needsOf(or.Design, or.Data, "y")
+	if n.forced != 1 || n.units != 120 {
+		t.Fatalf("forced %d of %d units, want 1 of 120", n.forced, n.units)
+	}
+	const R = 4000
+	first := 0
+	for r := range R {
+		got, lacked, failed := drawResample(or.Data, n, resampleRNG(9, 0, r))
+		if failed != "" {
+			t.Fatalf("resample %d failed: %s", r, failed)
+		}
+		if len(lacked) > 0 {
+			first++
+			if !slices.Equal(lacked[0], []string{"g = rare"}) {
+				t.Fatalf("resample %d lacked %q", r, lacked[0])
+			}
+		} else if plain := Resample(or.Data, resampleRNG(9, 0, r)); !slices.Equal(plain.Lines, got.Lines) || !slices.Equal(plain.Y, got.Y) {
+			t.Fatalf("resample %d lacked nothing but differs from the plain draw", r)
+		}
+		if !slices.Contains(got.Lines, or.Data.Lines[5]) {
+			t.Fatalf("resample %d lacks the rare row (line %d)", r, or.Data.Lines[5])
+		}
+	}
+	p := math.Pow(1-1.0/120, 120)
+	se := math.Sqrt(p * (1 - p) / R)
+	if share := float64(first) / R; math.Abs(share-p) > 4*se {
+		t.Errorf("share of first draws lacking the rare level %.4f, want %.4f +- %.4f", share, p, 4*se)
+	}
+
+	small := &data.Dataset{N: 3, K: 0, Y: []int{0, 1, 2}, Categories: []string{"1", "2", "3"}, Lines: []int{2, 3, 4}}
+	ns := needsOf(or.Design, small, "y")
+	if _, _, failed := drawResample(small, ns, resampleRNG(1, 0, 0)); !strings.Contains(failed, "each of the 3 rows alone holds") {
+		t.Errorf("three rows, three categories: %q", failed)
 	}
 }
 

@@ -188,11 +188,15 @@ func TestSelectionStabilityQueueSaysLocal(t *testing.T) {
 }
 
 // A cluster bootstrap of a plan whose predictors hold the clusters as
-// levels (site fixed effects, errors clustered by a copy of site) fails
-// in every resample that leaves a site out: the report's plain reading
-// says the share counts failures, not stability, and the reasons are
-// listed one to a line; the outcome's notes said so before the resamples
-// (Analysis.StabilityLevels).
+// levels (site fixed effects, errors clustered by a copy of site) cannot
+// draw a resample that holds every level and differs from the data: every
+// resample fails with that reason, the report's plain reading says the
+// share counts failures, not stability, and the reasons are listed one to
+// a line; the outcome's notes said so before the resamples
+// (Analysis.StabilityLevels). With one level in one cluster of 12, the
+// draws without that cluster are drawn again: no resample fails, and the
+// report counts the resamples redrawn and the draws set aside, with what
+// they lacked, and says the bootstrap is conditional on the level.
 func TestSelectionStabilityMostlyFailedReport(t *testing.T) {
 	dir := t.TempDir()
 	var b strings.Builder
@@ -207,17 +211,45 @@ func TestSelectionStabilityMostlyFailedReport(t *testing.T) {
 	out := filepath.Join(dir, "out")
 	report := runReport(t, planPath, out)
 	for _, want := range []string{"so this share says how often it could be run on such data, not how stable the choice is",
-		"levels that are the clusters themselves fail whenever a cluster is left out",
-		"The reasons met first, each once (at most 5, as the resample's own fit gave them):\n\n- ",
-		`term "site": its column "site.s`,
-		// Said in advance, among the outcome's notes: 1 - 6!/6^6 = 0.985
-		// of the resamples leave out one of the six clusters.
-		`selection_stability: the bootstrap draws whole clusters of "site2", and the rows of site = s0 (cluster "s0"), site = s1 (cluster "s1"), site = s2 (cluster "s2") and 3 more lie in one cluster each: a resample that does not draw that cluster has no row of the level, so its column cannot be estimated and the resample fails as a whole; about 98.5% of the 20 resamples are expected to fail for this alone (6 such clusters of 6, each left out of a resample with probability (1-1/6)^6 = 0.33)`} {
+		"when every cluster is a level of its own no resample can differ from the data",
+		"The reasons met first, each once (at most 5, as the resample's own fit gave them):\n\n- each of the 6 clusters alone holds a category or level of the data (or a combination an interaction reads), so a resample holding them all is the data again and cannot vary: no resample is drawn",
+		`selection_stability: the bootstrap draws whole clusters of "site2", and the rows of site = s0 (cluster "s0"), site = s1 (cluster "s1"), site = s2 (cluster "s2") and 3 more lie in one cluster each: a draw that leaves that cluster out has no row of the level, so its column cannot be estimated; every one of the 6 clusters holds such a level, so a resample holding every level is the data again, and no resample is drawn (the study reports every resample as failed).`} {
 		if !strings.Contains(report, want) {
 			t.Errorf("report.md lacks %q", want)
 		}
 	}
-	if strings.Contains(report, "the choice is fragile") {
-		t.Errorf("report.md calls the choice fragile on the few resamples that ran")
+	if strings.Contains(report, "the choice is fragile") || strings.Contains(report, "A resample must hold every category") {
+		t.Errorf("report.md calls the choice fragile on the few resamples that ran, or describes redraws that were not made")
+	}
+
+	b.Reset()
+	b.WriteString("x,y,site,cl\n")
+	for i := range 240 {
+		site := []string{"k", "m"}[i%2]
+		if i%12 == 0 {
+			site = "z"
+		}
+		fmt.Fprintf(&b, "%d,%d,%s,c%d\n", i%13, 1+(i*7+i%13)%3, site, i%12)
+	}
+	planPath = writeStudy(t, dir, b.String(), "version: 1\ndata: {file: d.csv, cluster: cl}\noutcomes: [{column: y}]\npredictors: [x, site]\n"+
+		"categorical: {site: {levels: [k, m, z]}}\ncovariance: clustered\n"+
+		"models: {approaches: [cumulative], effects: [parallel]}\n"+
+		"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\nselection_stability: {resamples: 20, seed: 4}\n")
+	report = runReport(t, planPath, filepath.Join(dir, "out12"))
+	dec, err := os.ReadFile(filepath.Join(dir, "out12", "decisions.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"a draw lacking one was set aside and another drawn from the resample's own stream (at most 100 for one resample)",
+		"of the 20 resamples needed another draw, with ",
+		"what they lacked most often: site = z (",
+		"The shares are therefore those of a bootstrap conditional on all of these appearing: 1 of the 12 clusters alone holds one of them, so every resample kept draws it",
+		"that the data hold was drawn again, so the resamples are conditional on each appearing"} {
+		if !strings.Contains(report, want) {
+			t.Errorf("one level in one cluster of 12: report.md lacks %q", want)
+		}
+	}
+	if strings.Contains(report, "the procedure failed") || !strings.Contains(string(dec), `"draws_lacked": [`) || !strings.Contains(string(dec), `"units_always_drawn": 1`) {
+		t.Errorf("one level in one cluster of 12: a resample failed, or decisions.json lacks the redraws")
 	}
 }
