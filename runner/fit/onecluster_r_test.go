@@ -190,4 +190,33 @@ func TestOneClusterAgainstR(t *testing.T) {
 	if w := fit.WaldLinear(&rj, h); w.OK || !strings.Contains(w.Reason, "are not estimable under clustered errors") {
 		t.Errorf("jackknife x = s1 was computed or says nothing: %+v", w)
 	}
+
+	// x, s1 and xs1 on a common scale: with two categories the common
+	// factor has no parameter of its own (phi_1 = 1), so the model is
+	// glm's logistic regression again, fitted as a constrained model
+	// (several starts), and its jackknife, whose refits without clusters
+	// 1 to 3 hold the site columns in the group, is R's by hand as well.
+	mc := m
+	mc.Effects = []fit.Effect{fit.Constrained, fit.Parallel, fit.Constrained, fit.Parallel, fit.Parallel, fit.Constrained}
+	rc := mustFit(t, "onecluster constrained", d, mc, fit.Options{})
+	Jc, cinfo, err := fit.ClusterJackknife(d, rc, clusters, fit.Options{})
+	if err != nil {
+		t.Fatalf("constrained jackknife: %v", err)
+	}
+	if cinfo.NotEstimable == nil || strings.Join(cinfo.NotEstimable.Parameters, ",") != "s1,s2,s3,xs1" {
+		t.Fatalf("constrained jackknife's not estimable: %+v", cinfo.NotEstimable)
+	}
+	if len(rc.Estimates) != P {
+		t.Fatalf("constrained model of two categories: parameters %v", rc.ParamNames)
+	}
+	worst = 0
+	for i := 0; i < 3; i++ {
+		for j := 0; j < 3; j++ {
+			worst = math.Max(worst, math.Abs(Jc[i*P+j]-Rj[i*3+j])/math.Sqrt(Rj[i*3+i]*Rj[j*3+j]))
+		}
+	}
+	t.Logf("constrained: jackknife of tau, x, z against R's glm refits: %.3g (relative)", worst)
+	if !(worst <= 1e-6) {
+		t.Errorf("constrained: jackknife of tau, x, z differs from R's glm refits by %.3g (relative)", worst)
+	}
 }

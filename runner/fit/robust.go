@@ -5,8 +5,6 @@ import (
 	"math"
 	"slices"
 	"sort"
-
-	"ordplan/internal/words"
 )
 
 // SandwichInfo describes how a sandwich covariance was computed.
@@ -414,9 +412,15 @@ func (d *Data) emptyCategory() int {
 // jackknifeBound finds the combinations of fit r's parameters whose rows
 // all lie in one cluster (oneClusterCombinations at r's estimates; nil
 // when there are none), which ClusterJackknife marks not estimable and
-// holds fixed in the refit without their cluster. Such a refit is made
-// only for a model without constrained predictors; with them the
-// jackknife is refused, naming the parameters and what can be done.
+// holds fixed in the refit without their cluster, whatever the model's
+// effect structure. With constrained predictors too: a column whose rows
+// lie in one cluster is 0 on every row left, so its g (and the phi of a
+// group holding only such columns) leaves the log-likelihood flat along
+// its own axis, and with the reference level one cluster the thresholds
+// move with the group's g along the refit's phi, a straight line through
+// each of its maxima that the held direction crosses; refitFlat checks
+// that the log-likelihood itself is at a maximum, so a direction that was
+// not flat makes the refit unusable, with the reason, rather than wrong.
 func jackknifeBound(d *Data, r *Result, clusters []string) (*clusterBound, error) {
 	ly, err := newLayout(r.Model, d.J, d.Predictors)
 	if err != nil {
@@ -427,21 +431,7 @@ func jackknifeBound(d *Data, r *Result, clusters []string) (*clusterBound, error
 	if err != nil || len(dirs) == 0 {
 		return nil, err
 	}
-	if len(ly.groups) > 0 {
-		V := make([]float64, len(r.Estimates)*len(r.Estimates))
-		_, ne := markNotEstimable(V, r.ParamNames, dirs, ids, minv)
-		return nil, jackknifeRefusal(ne, "the model constrains predictors to a common scale, whose refit without such a cluster the program does not make")
-	}
 	return &clusterBound{dirs: dirs, ids: ids, minv: minv}, nil
-}
-
-// jackknifeRefusal is the error of a delete-one-cluster jackknife refused
-// because of the parameters ne names: which they are, why (the reason
-// of NotEstimable and what stops their refit), and what the user can do.
-func jackknifeRefusal(ne *NotEstimable, why string) error {
-	return fmt.Errorf("the delete-one-cluster jackknife is not computed for this model because of %s, whose rows all lie in one cluster (%s): %s. "+
-		"Leave those columns out of the model, give the model errors that do not cluster by this column, or drop the few-cluster correction (the clustered sandwich then shows them as n/a and the others with their errors)",
-		words.Some(ne.Parameters, 8), words.Some(quoteAll(ne.Clusters), 3), why)
 }
 
 // of is the one-cluster combinations of b that lie in cluster id (nil
@@ -459,7 +449,7 @@ func (b *clusterBound) of(id string) [][]float64 {
 	return out
 }
 
-// refitFlat refits r's model (no constrained predictors) on d, the rows
+// refitFlat refits r's model on d, the rows
 // outside a cluster whose one-cluster combinations are flat: the
 // log-likelihood of d does not change along them. Each is held at the
 // full fit's value by a quadratic term, -lambda/2 (u'(theta - b))^2 with u
