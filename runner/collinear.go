@@ -6,7 +6,6 @@ import (
 	"slices"
 	"strings"
 
-	"ordplan/runner/data"
 	"ordplan/runner/design"
 	"ordplan/runner/fit"
 )
@@ -143,16 +142,21 @@ func termPlaceOf(ts *design.TermSpec, msg string) (place, out string, ok bool) {
 // found by the rank check or a fit, as the command reports it: a
 // collinearity in the words of the terms (collinearTerms), at the plan's
 // place of the term for a plan; what names the data beyond the outcome
-// ("imputed set 2"; "" for none). ds is the data the design was built on
-// (nil when the refusal is not about one data set): when more of its rows
-// were dropped than kept, a constant or collinear term ends with why so
-// few rows remain (Dataset.FewRowsCause), the likely cause.
-func (a *Analysis) designError(r Reading, dz *design.Design, ds *data.Dataset, err error, what string) error {
+// ("imputed set 2"; "" for none). few is why so few rows remain, when
+// more rows were dropped than kept (Dataset.FewRowsSentence,
+// PartsSummary.FewRowsSentence; "" for none, or when the refusal is not
+// about one data set): a refusal that counts the rows used, a constant or
+// collinear term or more parameters than observations, ends with it, the
+// likely cause.
+func (a *Analysis) designError(r Reading, dz *design.Design, few string, err error, what string) error {
 	place, msg, ok := r.collinearTerms(err, dz, a.Source)
-	if ok && ds != nil {
-		if why := ds.FewRowsCause(); why != "" {
-			msg += fmt.Sprintf(". Only %d of the %d rows read are used: %s", ds.N, ds.RowsRead, why)
-		}
+	var ie *fit.InputError
+	counted := ok || errors.As(err, &ie) && ie.FewObservations
+	if !counted {
+		few = ""
+	}
+	if ok && few != "" {
+		msg += ". " + few
 	}
 	if what != "" {
 		what = ", " + what
@@ -162,8 +166,12 @@ func (a *Analysis) designError(r Reading, dz *design.Design, ds *data.Dataset, e
 		return fmt.Errorf("%s%s: %s (data %s, outcome %q%s)", a.Source, place, msg, a.DataFile, r.Outcome, what)
 	case ok:
 		return fmt.Errorf("%s: %s", a.DataFile, msg)
+	case a.Plan && few != "":
+		return fmt.Errorf("%s: outcome %q%s: %w. %s", a.DataFile, r.Outcome, what, err, few)
 	case a.Plan:
 		return fmt.Errorf("%s: outcome %q%s: %v", a.DataFile, r.Outcome, what, err)
+	case few != "":
+		return fmt.Errorf("%s: %w. %s", a.DataFile, err, few)
 	}
 	return fmt.Errorf("%s: %w", a.DataFile, err)
 }

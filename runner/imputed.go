@@ -839,7 +839,7 @@ func decideImputed(an *Analysis, r Reading, or *OutcomeResult, sets []*data.Data
 	for k, d := range run.Sets {
 		if err := fit.CheckDesign(d); err != nil {
 			if _, _, ok := r.collinearTerms(err, dz, an.Source); ok {
-				return an.designError(r, dz, nil, err, fmt.Sprintf("imputed set %d", k+1))
+				return an.designError(r, dz, "", err, fmt.Sprintf("imputed set %d", k+1))
 			}
 			return fmt.Errorf("%s: outcome %q, imputed set %d: %v", an.Source, or.Outcome.Column, k+1, err)
 		}

@@ -109,16 +109,16 @@ func gatherNullRows(rows *fit.Data, ds *data.Dataset) {
 	rows.Offset = append(rows.Offset, ds.Offset...)
 }
 
-// PartsRank is the rank check of a fit over parts held by workers, from
-// the whole data's moments (fit.CheckMoments, which FitFromSums also
-// makes), its failure said in the words of the flags as for the rows read
-// in one place (the terms of a plain-column design), before any part is
-// sent to a worker.
-func (a *Analysis) PartsRank(whole fit.Whole) error {
-	if whole.Moments == nil {
-		return nil
-	}
-	err := fit.CheckMoments(whole.Predictors, whole.Moments)
+// PartsCheck makes the checks of a fit of model m over parts held by
+// workers that the whole data's counts and moments allow (fit.CheckWhole:
+// more parameters than observations, a constant or collinear predictor,
+// as the rank check of the rows read in one place), before any part is
+// sent to a worker; a failure is said in the words of the flags (the terms
+// of a plain-column design), ending, when more rows were dropped than
+// kept, with why so few remain (kept: what the parts kept, from
+// queue.PartitionFiles; PartsSummary.FewRowsSentence).
+func (a *Analysis) PartsCheck(whole fit.Whole, m fit.Model, kept *data.PartsSummary) error {
+	err := fit.CheckWhole(whole, m, fit.Options{})
 	if err == nil {
 		return nil
 	}
@@ -127,7 +127,7 @@ func (a *Analysis) PartsRank(whole fit.Whole) error {
 	if derr != nil || !slices.Equal(dz.Columns, whole.Predictors) {
 		dz = nil
 	}
-	return a.designError(r, dz, nil, err, "")
+	return a.designError(r, dz, kept.FewRowsSentence(), err, "")
 }
 
 // PartsCollinearity checks a fit over parts for near-collinearity of its

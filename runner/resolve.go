@@ -693,7 +693,7 @@ func (a *Analysis) fewClusters(r Reading, ds *data.Dataset) string {
 // (nil for a resample, whose primary data were checked).
 func (a *Analysis) CheckDesign(r Reading, dz *design.Design, ds *data.Dataset, d *fit.Data) error {
 	if err := fit.CheckDesign(d); err != nil {
-		return a.designError(r, dz, ds, err, "")
+		return a.designError(r, dz, ds.FewRowsSentence(), err, "")
 	}
 	return a.checkGridLevels(r, dz)
 }

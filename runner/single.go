@@ -136,7 +136,7 @@ func fitOne(s SingleFit) (*fit.Result, *Loaded, *Analysis, error) {
 	}
 	res, err := fit.Fit(ld.FitData, model, a.Fit)
 	if err != nil {
-		return nil, ld, a, a.designError(a.Outcomes[0], ld.Design, ld.Data, err, "")
+		return nil, ld, a, a.designError(a.Outcomes[0], ld.Design, ld.Data.FewRowsSentence(), err, "")
 	}
 	if res.OK() {
 		if err := a.Errors.Settle(ds, ld.FitData, terms)(res); err != nil {

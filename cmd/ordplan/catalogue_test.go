@@ -1353,7 +1353,21 @@ func catalogue(dir string) (items []badInput) {
 		{id: "D7", name: "number too large for a float", args: fitArgs(d("overflow.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`overflow.csv:3: column "a": value "1e999" is infinite (too large for a number)`}},
 		{id: "D8", name: "outcome with one category", args: fitArgs(d("onecat.csv"), "--predictors", "a,b"), code: 1,
-			want: []string{`onecat.csv: column "y": only one category ("2") among the 3 kept rows; at least two are needed`}},
+			want: []string{`onecat.csv: column "y": only one category ("2") among the 3 kept rows; at least two are needed`},
+			check: func(t *testing.T, dir, out, errs string) {
+				// z observed only in every third row of category 2: the
+				// rows kept hold one category, and the refusal says why
+				// so few rows remain.
+				kept := 0
+				withColumns(t, dir, "D8loss.csv", "z", func(i int, f []string) string {
+					if f[0] == "2" && i%3 == 0 {
+						kept++
+						return "1.5"
+					}
+					return ""
+				})
+				rowLossRefused(t, dir, "D8loss.csv", "a,z", fmt.Sprintf(`column "y": only one category ("2") among the %d kept rows; at least two are needed. Only %d of the 120 rows read are used: %d of 120 rows dropped for missing values (z: %d). Predictor column "z" is observed in %d of the 120 rows`, kept, kept, 120-kept, 120-kept, kept))
+			}},
 		{id: "D9", name: "declared category never observed", args: []string{"run"},
 			plan: edit("column: y", "column: y\n    categories: [\"1\", \"2\", \"3\", \"4\"]"), code: 1,
 			want: []string{`D9.yaml: outcomes: y: category "4" is declared but never observed in the 120 rows used; remove it from categories or merge it with a neighbour`},
@@ -1977,7 +1991,22 @@ func catalogue(dir string) (items []badInput) {
 				}
 			}},
 		{id: "M7", name: "more parameters than observations", args: fitArgs(d("three.csv"), "--predictors", "a,b"), code: 1,
-			want: []string{`three.csv: model cumulative/parallel/logit has 4 parameters but only 3 observations`}},
+			want: []string{`three.csv: model cumulative/parallel/logit has 4 parameters but only 3 observations`},
+			check: func(t *testing.T, dir, out, errs string) {
+				// z observed in the first row of each category only: 3
+				// rows for 4 parameters, and the refusal says why so few
+				// rows remain (over parts held by queue workers too, where
+				// it was fitted and reported as separation).
+				seen := map[string]bool{}
+				withColumns(t, dir, "M7loss.csv", "z", func(i int, f []string) string {
+					if !seen[f[0]] {
+						seen[f[0]] = true
+						return fmt.Sprint(i % 4)
+					}
+					return ""
+				})
+				rowLossRefused(t, dir, "M7loss.csv", "a,z", `model cumulative/parallel/logit has 4 parameters but only 3 observations. Only 3 of the 120 rows read are used: 117 of 120 rows dropped for missing values (z: 117). Predictor column "z" is observed in 3 of the 120 rows (117 missing, 97.5%), fewer than half: every row missing it, 117, is dropped (complete cases), so at most 3 rows remain for the fits.`)
+			}},
 		{id: "M8", name: "predictor in huge units (1e8)", args: fitArgs(d("d.csv"), "--predictors", "big,b", "--json"), code: 0,
 			want: []string{`"status": "ok"`}, known: scaleProblem, check: scaled("big", 1e8)},
 		{id: "M9", name: "predictor in tiny units (1e-8), nonparallel", args: fitArgs(d("d.csv"), "--predictors", "tiny,b", "--all-nonparallel", "--approach", "stage", "--json"), code: 0,
@@ -2556,9 +2585,11 @@ func overQueueParts(preds, want string) func(t *testing.T, dir, out, errs string
 // afterRowLoss is check followed by a fit to loss.csv, d.csv with
 // columns z (observed in every third row only), k (1 in those rows,
 // varying in the others) and u and v (v = u + 1 in those rows, not in the
-// others), on predictors preds: with more rows dropped than kept, the
-// refusal of a constant or collinear term says why so few rows remain
-// (Dataset.FewRowsCause), want among its words.
+// others), on predictors preds, read as one file and as two parts held by
+// queue workers (refused before connecting): with more rows dropped than
+// kept, the refusal of a constant or collinear term says why so few rows
+// remain (Dataset.FewRowsSentence, PartsSummary.FewRowsSentence), want
+// among its words.
 func afterRowLoss(check func(t *testing.T, dir, out, errs string), preds, want string) func(t *testing.T, dir, out, errs string) {
 	return func(t *testing.T, dir, out, errs string) {
 		t.Helper()
@@ -2570,10 +2601,33 @@ func afterRowLoss(check func(t *testing.T, dir, out, errs string), preds, want s
 			}
 			return fmt.Sprintf(",%d,%d,%d", i%2, u, i%5)
 		})
-		_, e, code := runCLI(fitArgs(filepath.Join(dir, "loss.csv"), "--predictors", preds)...)
-		if code != 1 || !strings.Contains(e, want) {
-			t.Errorf("after heavy row loss: exit %d:\n%s\nwant exit 1 and %q", code, e, want)
-		}
+		rowLossRefused(t, dir, "loss.csv", preds, want)
+	}
+}
+
+// rowLossRefused fits file (in dir) on predictors preds, read as one file
+// and as two parts held by queue workers, and checks that both are
+// refused with want among the words.
+func rowLossRefused(t *testing.T, dir, file, preds, want string) {
+	t.Helper()
+	_, e, code := runCLI(fitArgs(filepath.Join(dir, file), "--predictors", preds)...)
+	if code != 1 || !strings.Contains(e, want) {
+		t.Errorf("after heavy row loss: exit %d:\n%s\nwant exit 1 and %q", code, e, want)
+	}
+	b, err := os.ReadFile(filepath.Join(dir, file))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.SplitAfter(strings.TrimRight(string(b), "\n")+"\n", "\n")
+	half := len(lines) / 2
+	t.Chdir(dir)
+	p1, p2 := "part1-"+file, "part2-"+file
+	if os.WriteFile(p1, []byte(strings.Join(lines[:half], "")), 0o644) != nil || os.WriteFile(p2, []byte(lines[0]+strings.Join(lines[half:], "")), 0o644) != nil {
+		t.Fatal("writing the parts")
+	}
+	_, e, code = runCLI("fit", "--parts", p1+","+p2, "--outcome", "y", "--predictors", preds, "--queue", "nats://127.0.0.1:1", "--queue-secret-file", "queue.key")
+	if code != 1 || !strings.Contains(e, "ordplan: parts "+p1+", "+p2+": ") || !strings.Contains(e, want) {
+		t.Errorf("after heavy row loss, over parts held by queue workers: exit %d:\n%s\nwant exit 1 and %q", code, e, want)
 	}
 }
 

@@ -38,7 +38,7 @@ func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, std
 	if err != nil {
 		return fail(stderr, err)
 	}
-	if err := a.PartsRank(whole); err != nil {
+	if err := a.PartsCheck(whole, m, kept); err != nil {
 		return fail(stderr, err)
 	}
 	ctx, c, done, err := connectQueue(cfg, *qf.deadline, stderr)

@@ -175,7 +175,7 @@ func (d *Dataset) DropSummary() string {
 // which a refusal would otherwise keep from being printed. "" when fewer
 // rows were dropped than kept.
 func (d *Dataset) FewRowsCause() string {
-	if d.RowsDropped <= d.N {
+	if d == nil || d.RowsDropped <= d.N {
 		return ""
 	}
 	s := d.DropSummary()
@@ -183,6 +183,20 @@ func (d *Dataset) FewRowsCause() string {
 		s += ". " + strings.Join(d.MostlyMissing, ". ")
 	}
 	return s
+}
+
+// FewRowsSentence is the sentence a refusal that counts the rows used
+// (a constant or collinear term, one outcome category, more parameters
+// than observations) ends with when more rows were dropped than kept:
+// "Only N of the M rows read are used: " and FewRowsCause. "" otherwise,
+// and for no data set (nil). The one wording of it: Analysis.Observed
+// words its refusal around FewRowsCause itself.
+func (d *Dataset) FewRowsSentence() string {
+	why := d.FewRowsCause()
+	if why == "" {
+		return ""
+	}
+	return fmt.Sprintf("Only %d of the %d rows read are used: %s", d.N, d.RowsRead, why)
 }
 
 // DropReasons says what the rows counted in dc were dropped for, naming

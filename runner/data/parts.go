@@ -355,6 +355,10 @@ const emptyPart = "no data rows after the header; every part needs rows (leave a
 type PartsSummary struct {
 	d Dataset
 	w WeightTotal
+	// miss: the parts' missing values by used column, and the rows their
+	// tables describe, summed (the notes of mostly missing columns, W34,
+	// that say why few rows remain: Check)
+	miss MissingTable
 }
 
 // Add counts one part's rows, kept and dropped, and the weights as read
@@ -375,6 +379,18 @@ func (s *PartsSummary) Add(ds *Dataset) {
 		}
 		s.d.Dropped[i].Rows += dc.Rows
 	}
+	if mt := ds.Missing; mt != nil {
+		if s.miss.ByColumn == nil {
+			s.miss.Columns = mt.Columns
+			s.miss.ByColumn = make([]int, len(mt.ByColumn))
+		}
+		s.miss.Rows += mt.Rows
+		for j, n := range mt.ByColumn {
+			if j < len(s.miss.ByColumn) {
+				s.miss.ByColumn[j] += n
+			}
+		}
+	}
 }
 
 // Weights is the rows kept and the weights' sum of all parts, summed in
@@ -392,6 +408,16 @@ func (s *PartsSummary) RowsRead() int { return s.d.RowsRead }
 // Dataset.DropSummary for the data read as one.
 func (s *PartsSummary) DropSummary() string { return s.d.DropSummary() }
 
+// FewRowsSentence says why few rows remain, as Dataset.FewRowsSentence
+// for the data read as one (the notes of mostly missing columns once
+// Check has judged the whole data).
+func (s *PartsSummary) FewRowsSentence() string {
+	if s == nil {
+		return ""
+	}
+	return s.d.FewRowsSentence()
+}
+
 // Check judges the whole data as reading it as one data set does: name
 // names it in messages (PartsName), opt are the options the parts were
 // read with, categories and counts the whole data's outcome categories
@@ -399,6 +425,9 @@ func (s *PartsSummary) DropSummary() string { return s.d.DropSummary() }
 func (s *PartsSummary) Check(name string, opt Options, categories []string, counts []float64) error {
 	r := &reader{file: name, opt: opt}
 	r.opt.Part = false
+	if cols, err := r.opt.plan(); err == nil {
+		s.d.MostlyMissing = mostlyMissing(cols, &s.miss, opt.KeepIncomplete)
+	}
 	if err := r.noneKept(&s.d, true); err != nil {
 		return err
 	}

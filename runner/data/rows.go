@@ -150,13 +150,17 @@ func (r *reader) finish(t *rowTally, d *Dataset) (*Dataset, error) {
 			d.StrayCode = strayCode(opt.Outcome, d.Categories)
 		}
 	}
-	if err := r.tally(d); err != nil {
-		return nil, err
-	}
+	tally(d)
 	d.Missing.byCategory(r.cols, d, t.catMiss, t.catIncomplete)
 	if !opt.Part {
 		d.MostlyMissing = mostlyMissing(r.cols, d.Missing, opt.KeepIncomplete)
 		d.Notes = append(d.Notes, d.MostlyMissing...)
+		// After the notes, which its refusal gives when few rows remain
+		// (Dataset.FewRowsSentence); parts are judged once on the whole
+		// data (PartsSummary).
+		if err := r.twoCategories(d); err != nil {
+			return nil, err
+		}
 	}
 	return d, nil
 }
@@ -1122,9 +1126,9 @@ func (r *reader) listedCodes(codes []int64, d *Dataset) ([]string, error) {
 // codeSpan is the largest span of outcome codes looked up in a table.
 const codeSpan = 1 << 16
 
-// tally counts the kept rows per category and checks that at least two
-// categories are present.
-func (r *reader) tally(d *Dataset) error {
+// tally counts the kept rows per category and lists those no row has
+// (finish then checks that at least two categories are present).
+func tally(d *Dataset) {
 	d.Counts = make([]float64, len(d.Categories))
 	for i, y := range d.Y {
 		if y < 0 {
@@ -1141,15 +1145,11 @@ func (r *reader) tally(d *Dataset) error {
 			d.Unobserved = append(d.Unobserved, d.Categories[j])
 		}
 	}
-	if r.opt.Part {
-		// Judged once on the whole data (PartsSummary).
-		return nil
-	}
-	return r.twoCategories(d)
 }
 
 // twoCategories refuses data whose kept rows hold fewer than two outcome
-// categories.
+// categories, saying why so few rows remain when more were dropped than
+// kept (Dataset.FewRowsSentence).
 func (r *reader) twoCategories(d *Dataset) error {
 	seen := 0
 	last := ""
@@ -1160,7 +1160,11 @@ func (r *reader) twoCategories(d *Dataset) error {
 		}
 	}
 	if seen < 2 {
-		return r.fail(0, d.Outcome, "only one category (%s) among the %d kept rows; at least two are needed", quoteCell(last), d.N)
+		e := r.fail(0, d.Outcome, "only one category (%s) among the %d kept rows; at least two are needed", quoteCell(last), d.N)
+		if few := d.FewRowsSentence(); few != "" {
+			e.Msg += ". " + few
+		}
+		return e
 	}
 	return nil
 }

@@ -332,6 +332,9 @@ type InputError struct {
 	// Collinear, when set, is the collinearity the message describes,
 	// for a caller that names the predictors in its own terms.
 	Collinear *Collinearity
+	// FewObservations: the model has more parameters than observations
+	// (tooFewObservations), a refusal that counts the rows used.
+	FewObservations bool
 }
 
 // Collinearity is a predictor that is a linear combination of earlier
@@ -352,6 +355,17 @@ type Collinearity struct {
 func (e *InputError) Error() string { return e.Msg }
 
 func inputErr(format string, a ...any) error { return &InputError{Msg: fmt.Sprintf(format, a...)} }
+
+// tooFewObservations refuses model m of params parameters on nobs
+// observations when it has more parameters than observations: the one
+// check and wording, for a fit of rows (fitChecked) and over parts
+// (CheckWhole).
+func tooFewObservations(m Model, params int, nobs float64) error {
+	if float64(params) <= nobs {
+		return nil
+	}
+	return &InputError{Msg: fmt.Sprintf("model %s has %d parameters but only %g observations", m.Name(), params, nobs), FewObservations: true}
+}
 
 // Fit estimates model m on data d.
 func Fit(d *Data, m Model, opt Options) (*Result, error) {
@@ -395,9 +409,8 @@ func fitChecked(d *Data, m Model, opt Options, sh *shared) (res *Result, err err
 	if err != nil {
 		return nil, &InputError{Msg: err.Error()}
 	}
-	nobs := d.observations(opt.Sampling)
-	if float64(len(ly.params)) > nobs {
-		return nil, inputErr("model %s has %d parameters but only %g observations", m.Name(), len(ly.params), nobs)
+	if err := tooFewObservations(m, len(ly.params), d.observations(opt.Sampling)); err != nil {
+		return nil, err
 	}
 	sd, err := sh.rank(d, opt.Workers)
 	if err != nil {

@@ -195,6 +195,58 @@ func (s *Spread) SD() []float64 {
 	return sd
 }
 
+// CheckWhole makes the checks FitFromSums makes of the whole data before
+// any sum is asked for: every category observed, a model that can be
+// summed over parts, no more parameters than observations
+// (tooFewObservations, as a fit of the rows in one place refuses), no
+// constant or collinear predictor (CheckMoments), the options and shift
+// it can take. A caller makes them before it sends any part to a worker.
+func CheckWhole(w Whole, m Model, opt Options) error {
+	_, err := checkWhole(w, m, opt)
+	return err
+}
+
+// checkWhole is CheckWhole, also returning the observations.
+func checkWhole(w Whole, m Model, opt Options) (float64, error) {
+	if w.J < 2 || len(w.Counts) != w.J {
+		return 0, inputErr("the whole data need %d category counts", w.J)
+	}
+	nobs := 0.0
+	for c, n := range w.Counts {
+		if n <= 0 {
+			lv := fmt.Sprint(c + 1)
+			if c < len(w.Categories) {
+				lv = w.Categories[c]
+			}
+			return 0, inputErr("category %q of the outcome is never observed", lv)
+		}
+		nobs += n
+	}
+	nobs = Observations(w.Rows, nobs, opt.Sampling)
+	ly, err := newLayout(m, w.J, w.Predictors)
+	if err != nil {
+		return 0, &InputError{Msg: err.Error()}
+	}
+	if err := OverParts(m); err != nil {
+		return 0, inputErr("%s: %v", m.Name(), err)
+	}
+	if err := tooFewObservations(m, len(ly.params), nobs); err != nil {
+		return 0, err
+	}
+	if w.Moments != nil {
+		if err := CheckMoments(w.Predictors, w.Moments); err != nil {
+			return 0, err
+		}
+	}
+	if opt.Covariance == Expected {
+		return 0, inputErr("partitioned fits give observed-information errors only (covariance %q): the expected information needs the rows", Observed)
+	}
+	if len(w.Shift) > len(w.Predictors) || !finite(w.Shift) {
+		return 0, inputErr("the whole data's shift has %d values for %d predictors, or a value that is not a finite number", len(w.Shift), len(w.Predictors))
+	}
+	return nobs, nil
+}
+
 // FitFromSums fits model m by the Newton engine with the log-likelihood
 // summed by sums (for example over partitions held by workers). diag, when
 // not nil, returns the negative-probability row count and the smallest
@@ -205,38 +257,13 @@ func (s *Spread) SD() []float64 {
 // are refused (their multi-start search needs the rows). The result
 // matches a local Fit to rounding.
 func FitFromSums(w Whole, m Model, sums func(theta []float64, order int) (*Sums, error), diag func(theta []float64) (int, float64, error), opt Options) (*Result, error) {
-	if w.J < 2 || len(w.Counts) != w.J {
-		return nil, inputErr("the whole data need %d category counts", w.J)
+	nobs, err := checkWhole(w, m, opt)
+	if err != nil {
+		return nil, err
 	}
-	nobs := 0.0
-	for c, n := range w.Counts {
-		if n <= 0 {
-			lv := fmt.Sprint(c + 1)
-			if c < len(w.Categories) {
-				lv = w.Categories[c]
-			}
-			return nil, inputErr("category %q of the outcome is never observed", lv)
-		}
-		nobs += n
-	}
-	nobs = Observations(w.Rows, nobs, opt.Sampling)
 	ly, err := newLayout(m, w.J, w.Predictors)
 	if err != nil {
 		return nil, &InputError{Msg: err.Error()}
-	}
-	if err := OverParts(m); err != nil {
-		return nil, inputErr("%s: %v", m.Name(), err)
-	}
-	if w.Moments != nil {
-		if err := CheckMoments(w.Predictors, w.Moments); err != nil {
-			return nil, err
-		}
-	}
-	if opt.Covariance == Expected {
-		return nil, inputErr("partitioned fits give observed-information errors only (covariance %q): the expected information needs the rows", Observed)
-	}
-	if len(w.Shift) > len(w.Predictors) || !finite(w.Shift) {
-		return nil, inputErr("the whole data's shift has %d values for %d predictors, or a value that is not a finite number", len(w.Shift), len(w.Predictors))
 	}
 	c := centringBy(w.Shift, len(w.Predictors))
 	if c != nil && opt.Start != nil {
