@@ -45,7 +45,14 @@ func CheckData(p *plan.Plan) ([]string, error) {
 		if w := a.StabilityLevels(r, used); w != "" {
 			warnings = append(warnings, fmt.Sprintf("outcome %s: %s", r.Outcome, w))
 		}
-		if w := a.FewRowLevels(r, ld.Design, used, nil); w != "" {
+		levelRows := used
+		if a.Imputes() || a.Imputed != nil {
+			// The rows as read, as run counts them (OutcomeResult.levelRows).
+			if levelRows, err = a.loadIncomplete(r); err != nil {
+				return nil, err
+			}
+		}
+		if w := a.FewRowLevels(r, ld.Design, levelRows, nil); w != "" {
 			warnings = append(warnings, fmt.Sprintf("outcome %s: %s", r.Outcome, w))
 		}
 		if w := a.SparseWithinUnmet(&OutcomeResult{Design: ld.Design, dataOptions: r.Options}, used); w != "" {
@@ -161,6 +168,17 @@ func (a *Analysis) rowsFitted(r Reading, complete *data.Dataset) (*data.Dataset,
 	return complete, nil
 }
 
+// levelRows are the rows the warning of levels with few rows counts
+// (Analysis.FewRowLevels, W35): the rows the fits use, and on imputed data
+// the rows as read (Observed), where a level counts only the rows at which
+// it is observed, never the values imputed into it.
+func (or *OutcomeResult) levelRows() *data.Dataset {
+	if or.Imputed != nil && or.Observed != nil {
+		return or.Observed
+	}
+	return or.Data
+}
+
 // FewClustersWarnings are the warnings of a run's outcomes whose data have
 // too few clusters for clustered errors (Analysis.FewClusters), or levels
 // that a bootstrap of whole clusters will often leave out
@@ -180,7 +198,7 @@ func FewClustersWarnings(res *Result) []string {
 		if w := an.StabilityLevels(an.Outcomes[i], or.Data); w != "" && or.Stability != nil {
 			out = append(out, fmt.Sprintf("outcome %s: %s", an.Outcomes[i].Outcome, w))
 		}
-		if w := an.FewRowLevels(an.Outcomes[i], or.Design, or.Data, or.Fits); w != "" {
+		if w := an.FewRowLevels(an.Outcomes[i], or.Design, or.levelRows(), or.Fits); w != "" {
 			out = append(out, fmt.Sprintf("outcome %s: %s", an.Outcomes[i].Outcome, w))
 		}
 		if w := an.SparseWithinUnmet(or, or.Data); w != "" {

@@ -41,6 +41,15 @@ type fewRowCell struct {
 // combination with no row is not one of these (dropped, or refused as
 // T19). It returns "" when there is none.
 //
+// On imputed data (data.missing: impute, data.imputed) ds is the data as
+// read, incomplete rows kept (OutcomeResult.levelRows): a level counts
+// the rows where it is observed, never the values imputed into it. In
+// every imputed set a level holds those rows and the rows imputed into it,
+// whose values are drawn from the imputation models rather than observed,
+// so the observed rows are what its estimate rests on and the fewest any
+// set can hold, whatever the draw or the number of sets (counting one set
+// would name a level or not by chance). The message says so.
+//
 // A level or combination that another message speaks of is left out:
 // under clustered errors a level whose rows lie in one cluster (W29, its
 // combinations too); and, given the fits made (run), one whose column
@@ -98,10 +107,14 @@ func (a *Analysis) FewRowLevels(r Reading, dz *design.Design, ds *data.Dataset, 
 	if unit == "rows" {
 		total = strconv.Itoa(ds.N)
 	}
-	return fmt.Sprintf("Few %s at some levels of categorical predictors (fewer than %d of the %s %s used): %s. "+
+	counted := ""
+	if a.Imputes() || a.Imputed != nil {
+		counted = fmt.Sprintf(", counting at each level the %s where it is observed, not the values imputed into it", unit)
+	}
+	return fmt.Sprintf("Few %s at some levels of categorical predictors (fewer than %d of the %s %s used%s): %s. "+
 		"The coefficients, odds ratios, marginal effects and Wald tests of such a level or combination of levels rest on those %s alone, and their standard errors, p-values and intervals on a large-sample (normal) approximation that so few support poorly: read them as rough. "+
 		"Merge such a level with a neighbouring one in the data (one code for both), leave the term out, or, if the level is meant as it is, keep it and interpret its estimates with care%s",
-		unit, FewLevelRows, total, unit, words.Some(named, 6), unit, refNote)
+		unit, FewLevelRows, total, unit, counted, words.Some(named, 6), unit, refNote)
 }
 
 // separatedEverywhere reports whether column is among the predictors of

@@ -808,7 +808,7 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 	if err := decideImputed(an, r, or, sets, opt); err != nil {
 		return nil, err
 	}
-	if w := an.FewRowLevels(r, dz, &ds, or.Fits); w != "" {
+	if w := an.FewRowLevels(r, dz, or.levelRows(), or.Fits); w != "" {
 		or.Notes = append(or.Notes, w)
 	}
 	runPooledFitStats(an, or)

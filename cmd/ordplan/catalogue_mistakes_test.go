@@ -532,6 +532,7 @@ func mistakeItems(dir string) []badInput {
 				if !strings.Contains(e, `(fewer than 10 of the 120 rows used): g = rare (6 rows). The coefficients`) {
 					t.Errorf("run, separated cell: want rare alone in\n%s", e)
 				}
+				w35Imputed(t, dir)
 			}},
 		{id: "W32", name: "reject_if_sparse counting categories within the values of a numeric column of many values", args: []string{"check"}, code: 0,
 			plan: edit("  - reject_unconverged: true\n", "  - reject_unconverged: true\n  - reject_if_sparse: {smallest_category: 5, within: a}\n"),
@@ -618,6 +619,54 @@ func w35Data(t *testing.T, dir, name string, nHi int) {
 		}
 		return g + "," + k
 	})
+}
+
+// w35Imputed checks W35 on imputed data: h is rare in 8 rows and missing
+// in 8 whose x lies with the rare rows' (x near 5), so that imputation
+// puts rare there. The level is counted where it is observed (8 rows), in
+// check and run alike, by the program's imputation and on imputed sets
+// made elsewhere, whose first set holds 16 rows of rare (it was counted
+// on that set, and run said nothing).
+func w35Imputed(t *testing.T, dir string) {
+	t.Helper()
+	withColumns(t, dir, "W35mi.csv", "h,x", func(i int, f []string) string {
+		switch {
+		case i%15 == 0:
+			return fmt.Sprintf("rare,%.2f", 5+float64(i%7)/10)
+		case i%15 == 7:
+			return fmt.Sprintf(",%.2f", 5+float64(i%5)/10)
+		}
+		return "mn"[i%2:i%2+1] + "," + f[1]
+	})
+	orig, err := os.ReadFile(filepath.Join(dir, "W35mi.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(orig)), "\n")
+	var stacked strings.Builder
+	stacked.WriteString(lines[0] + ",imp\n")
+	for k, fill := range []string{"rare", "m"} {
+		for _, l := range lines[1:] {
+			fmt.Fprintf(&stacked, "%s,%d\n", strings.Replace(l, ",,", ","+fill+",", 1), k+1)
+		}
+	}
+	if err := os.WriteFile(filepath.Join(dir, "W35stacked.csv"), []byte(stacked.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	want := `Few rows at some levels of categorical predictors (fewer than 10 of the 120 rows used, counting at each level the rows where it is observed, not the values imputed into it): h = rare (8 rows). The coefficients`
+	for n, how := range []string{"  missing: impute\n  imputation: {sets: 5, seed: 35}\n", "  imputed: {file: W35stacked.csv, column: imp}\n"} {
+		plan := filepath.Join(dir, "W35mi.yaml")
+		text := edit("  file: d.csv\n", "  file: W35mi.csv\n"+how+"categorical:\n  h: {levels: [m, n, rare]}\n", "predictors: [a, b]\n", "predictors: [x, h]\n")
+		if err := os.WriteFile(plan, []byte(text), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		if _, e, code := runCLI("check", plan); code != 0 || !strings.Contains(e, want) {
+			t.Errorf("check, %s: exit %d, want %q in\n%s", strings.TrimSpace(how), code, want, e)
+		}
+		if _, e, code := runCLI("run", plan, "--out", filepath.Join(dir, fmt.Sprintf("W35mi-out%d", n)), "--quiet"); code != 0 || !strings.Contains(e, want) {
+			t.Errorf("run, %s: exit %d, want %q in\n%s", strings.TrimSpace(how), code, want, e)
+		}
+	}
 }
 
 // warnedInRun runs the plan into out and checks that the run warns on
