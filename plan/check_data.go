@@ -2,6 +2,7 @@ package plan
 
 import (
 	"errors"
+	"fmt"
 	"io/fs"
 	"path/filepath"
 	"slices"
@@ -19,6 +20,7 @@ import (
 // the line of the data file.
 func (d *decoder) checkDataColumns(p *Plan) {
 	d.checkImputedTwins(p)
+	d.checkOtherFiles(p)
 	var header []string
 	if p.Data.Parts != nil {
 		var ok bool
@@ -51,15 +53,10 @@ func (d *decoder) checkParts(p *Plan) ([]string, bool) {
 		file := p.Data.PartFiles[i]
 		h, err := data.HeaderDialect(path, p.Data.Dialect())
 		if err != nil {
-			if where, reason, unopened := notOpened(err, path, file); unopened {
-				if strings.ContainsAny(file, "*?[") {
-					d.errAt("data.parts", "the pattern %s matches no file%s", strconv.Quote(file), where)
-				} else {
-					d.errAt("data.parts", "cannot open the part %s%s: %s", strconv.Quote(file), where, reason)
-				}
+			if _, _, unopened := notOpened(err, path, file); unopened && strings.ContainsAny(file, "*?[") {
+				d.errAt("data.parts", "the pattern %s matches no file%s", strconv.Quote(file), lookedFor(path, file))
 				ok = false
-			} else if what, isnt := unreadableFile(err); isnt {
-				d.errAt("data.parts", "the part %s%s %s", strconv.Quote(file), lookedFor(path, file), what)
+			} else if d.fileProblem("data.parts", "the part", file, path, err) {
 				ok = false
 			}
 			continue // other problems with a part are the reader's to name
@@ -143,8 +140,8 @@ func lookedFor(path, file string) string {
 }
 
 // unreadableFile gives what makes the file at path no data file at all
-// ("is empty (...)", "is a folder, not a regular file: ..."), when err is
-// the reader's saying so.
+// ("is empty (...)", "is a folder, not a regular file: ...", "is
+// gzip-compressed; ..."), when err is the reader's saying so.
 func unreadableFile(err error) (string, bool) {
 	var de *data.Error
 	if !errors.As(err, &de) || de.Line != 0 {
@@ -153,10 +150,56 @@ func unreadableFile(err error) (string, bool) {
 	switch {
 	case errors.Is(err, data.ErrEmptyFile):
 		return strings.TrimPrefix(de.Msg, "file "), true
-	case errors.Is(err, data.ErrNotRegular):
+	case errors.Is(err, data.ErrNotRegular), errors.Is(err, data.ErrFileFormat):
 		return de.Msg, true
 	}
 	return "", false
+}
+
+// fileProblem reports at key a file the plan names there (file, looked
+// for at path; what: "the data file", "the part", ...) that err, the
+// reader's failure to read its header, says cannot be opened or is no
+// data file at all (unreadableFile: empty, not a regular file, not in a
+// form ordplan reads); it says whether it did. Other problems are the
+// reader's to name, at the file's line.
+func (d *decoder) fileProblem(key, what, file, path string, err error) bool {
+	if where, reason, unopened := notOpened(err, path, file); unopened {
+		d.errAt(key, "cannot open %s %s%s: %s", what, strconv.Quote(file), where, reason)
+		return true
+	}
+	if why, ok := unreadableFile(err); ok {
+		d.errAt(key, "%s %s%s %s", what, strconv.Quote(file), lookedFor(path, file), why)
+		return true
+	}
+	return false
+}
+
+// checkOtherFiles checks the other files the plan names, the imputed
+// sets (data.imputed.file, data.imputed.files) and the new rows
+// (inference.predict), as data.file is checked: one that cannot be opened
+// or is no data file at all is reported at its key (fileProblem), before
+// anything is read.
+func (d *decoder) checkOtherFiles(p *Plan) {
+	dl := p.Data.Dialect()
+	check := func(key, what, file, path string) {
+		if file == "" || path == "" || !d.clean(key) {
+			return
+		}
+		if _, err := data.HeaderDialect(path, dl); err != nil {
+			d.fileProblem(key, what, file, path, err)
+		}
+	}
+	// With data.missing: impute the plan's check refuses data.imputed
+	// (give one or the other): the sets are not read.
+	if im := p.Data.Imputed; im != nil && !p.Data.Imputes() {
+		check("data.imputed.file", "the file of imputed sets", im.File, im.Path)
+		for i, f := range im.Files {
+			if i < len(im.Paths) {
+				check(itemPath("data.imputed.files", i), fmt.Sprintf("imputed set %d", i+1), f, im.Paths[i])
+			}
+		}
+	}
+	check("inference.predict", "the file of new rows", p.Inference.Predict, p.Inference.PredictPath)
 }
 
 // dataHeader reads the header of data.file, reporting a file that cannot
@@ -167,11 +210,7 @@ func (d *decoder) dataHeader(p *Plan) ([]string, bool) {
 	}
 	header, err := data.HeaderDialect(p.Data.Path, p.Data.Dialect())
 	if err != nil {
-		if where, reason, unopened := notOpened(err, p.Data.Path, p.Data.File); unopened {
-			d.errAt("data.file", "cannot open the data file %s%s: %s", strconv.Quote(p.Data.File), where, reason)
-		} else if what, ok := unreadableFile(err); ok {
-			d.errAt("data.file", "the data file %s%s %s", strconv.Quote(p.Data.File), lookedFor(p.Data.Path, p.Data.File), what)
-		} else {
+		if !d.fileProblem("data.file", "the data file", p.Data.File, p.Data.Path, err) {
 			d.reportDialect(p.Data.Path, "data file "+p.Data.File, p.Data.Dialect())
 		}
 		return nil, false

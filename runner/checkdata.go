@@ -263,7 +263,7 @@ func NotCheckedWithoutData(p *plan.Plan) []string {
 		out = append(out, fmt.Sprintf("data.cluster: the number of clusters in the rows used (fewer than %d gives a warning: cluster-robust errors too small, joint Wald tests of more than G-1 restrictions not computed; a model of more than G-1 parameters gives another: its cluster-robust covariance is singular)", fit.FewClusters))
 	}
 	if p.Data.Imputed != nil {
-		out = append(out, "data.imputed: the imputed sets against the data file (their rows, columns and the values the data observe)")
+		out = append(out, "data.imputed: the imputed sets open and are data files ordplan reads, and match the data file (their rows, columns and the values the data observe)")
 	}
 	if p.Data.Imputes() {
 		out = append(out, "data.missing: impute: the columns imputed (none missing in every row), imputed into two sets after one iteration as run imputes them, and the design on the first imputed set, as run makes it")
@@ -301,7 +301,7 @@ func NotCheckedWithoutData(p *plan.Plan) []string {
 		out = append(out, "inference.profile: whether it lies outside the population fitted, and whether every term can be computed at it")
 	}
 	if p.Inference.PredictPath != "" {
-		out = append(out, "inference.predict: the new rows read through each outcome's design (undeclared levels, levels no row used has, values a transformation cannot take)")
+		out = append(out, "inference.predict: the file of new rows opens and is a data file ordplan reads, and its rows read through each outcome's design (undeclared levels, levels no row used has, values a transformation cannot take)")
 	}
 	for _, r := range p.Rules {
 		if slices.ContainsFunc(r.Grid, func(ax plan.GridAxis) bool { return ax.Levels != nil }) {

@@ -438,6 +438,13 @@ func pinFiles(files, paths []string) ([]DataRef, func(), error) {
 		h, unpin, err := data.Pin(path)
 		if err != nil {
 			release()
+			var de *data.Error
+			if errors.As(err, &de) {
+				// Named as the plan names the file, once.
+				e := *de
+				e.File = files[i]
+				return nil, nil, &e
+			}
 			return nil, nil, fmt.Errorf("%s: %v", files[i], err)
 		}
 		unpins = append(unpins, unpin)

@@ -357,7 +357,9 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		"hiddencol.xlsx": hideColumns(t, toWorkbook(t, []byte(csv)), "survey", "B"),
 		"parts/p1.csv":   []byte(csv), "parts/p2.csv": []byte(strings.SplitAfter(csv, "\n")[0] + strings.Join(reversed(rows), "\n") + "\n"), "otherpart.csv": []byte("y,a,z\n1,0.5,1\n"),
 		"emptypart.csv": []byte(strings.SplitAfter(csv, "\n")[0]),
-		"new.csv":       []byte("a,b\n0.5,1\n-1,0\n"), "short.key": []byte("short\n"), "queue.key": []byte("a shared secret of the catalogue's queue\n"), "precious.txt": []byte("keep me\n"),
+		"notbook.xlsx":  zipOf(t, "data.csv", csv), "cut.parquet": datesParquet(t)[:300], "binary.csv": []byte("y,a,b\n1,\x00\x01\x02,1\n"),
+		"cut.xlsx": toWorkbook(t, []byte(csv))[:2000],
+		"new.csv":  []byte("a,b\n0.5,1\n-1,0\n"), "short.key": []byte("short\n"), "queue.key": []byte("a shared secret of the catalogue's queue\n"), "precious.txt": []byte("keep me\n"),
 	}
 	os.MkdirAll(filepath.Join(dir, "parts"), 0o755)
 	for name, b := range files {
@@ -530,6 +532,36 @@ func datesParquet(t *testing.T) []byte {
 		t.Fatal(err)
 	}
 	if err := w.Close(); err != nil {
+		t.Fatal(err)
+	}
+	return b.Bytes()
+}
+
+// copyFile copies the file from to the path to.
+func copyFile(t *testing.T, from, to string) {
+	t.Helper()
+	b, err := os.ReadFile(from)
+	if err == nil {
+		err = os.WriteFile(to, b, 0o644)
+	}
+	if err != nil {
+		t.Fatal(err)
+	}
+}
+
+// zipOf is a ZIP archive holding one file, name, of the text content.
+func zipOf(t *testing.T, name, content string) []byte {
+	t.Helper()
+	var b bytes.Buffer
+	z := zip.NewWriter(&b)
+	w, err := z.Create(name)
+	if err == nil {
+		_, err = w.Write([]byte(content))
+	}
+	if err == nil {
+		err = z.Close()
+	}
+	if err != nil {
 		t.Fatal(err)
 	}
 	return b.Bytes()
@@ -1407,11 +1439,29 @@ func catalogue(dir string) (items []badInput) {
 		{id: "D13", name: "device as the data file", args: fitArgs("/dev/zero", "--predictors", "a,b"), code: 1,
 			want: []string{`/dev/zero: is a device (such as /dev/zero or a terminal), not a regular file`}},
 		{id: "D14", name: "gzip-compressed data file", args: fitArgs(d("gz.csv"), "--predictors", "a,b"), code: 1,
-			want: []string{`gz.csv: is gzip-compressed, not CSV text: decompress it first (gunzip)`}},
+			want: []string{`ordplan: gz.csv: is gzip-compressed; ordplan reads plain CSV or TSV text, .xlsx workbooks and Parquet files: decompress it first (gunzip)`}},
+		{id: "D14", name: "gzip-compressed data file of a plan: at data.file", args: []string{"check"}, plan: edit("file: d.csv", "file: gz.csv"), code: 1,
+			want: []string{`D14.yaml:3:9: data.file: the data file "gz.csv" (looked for gz.csv) is gzip-compressed; ordplan reads plain CSV or TSV text, .xlsx workbooks and Parquet files: decompress it first (gunzip)`}},
+		{id: "D14", name: "gzip-compressed data file of a plan run: at data.file", args: []string{"run"}, plan: edit("file: d.csv", "file: gz.csv"), code: 1,
+			want: []string{`D14.yaml:3:9: data.file: the data file "gz.csv" (looked for gz.csv) is gzip-compressed; ordplan reads plain CSV or TSV text, .xlsx workbooks and Parquet files: decompress it first (gunzip)`}},
+		{id: "D14", name: "a ZIP archive as a plan's data file: at data.file", args: []string{"check"}, plan: edit("file: d.csv", "file: notbook.zip"), code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				copyFile(t, filepath.Join(dir, "notbook.xlsx"), filepath.Join(dir, "notbook.zip"))
+			},
+			want: []string{`D14.yaml:3:9: data.file: the data file "notbook.zip" (looked for notbook.zip) is a ZIP archive, not CSV text; ordplan reads plain CSV or TSV text, .xlsx workbooks and Parquet files: extract the data file from it first`}},
+		{id: "D14", name: "a workbook named .csv", args: []string{"check"}, plan: edit("file: d.csv", "file: book-xlsx.csv"), code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				copyFile(t, filepath.Join(dir, "book.xlsx"), filepath.Join(dir, "book-xlsx.csv"))
+			},
+			want: []string{`D14.yaml:3:9: data.file: the data file "book-xlsx.csv" (looked for book-xlsx.csv) is an .xlsx workbook under a name that does not end in .xlsx: give it a name ending in .xlsx`}},
+		{id: "D52", name: "a binary file named .csv", args: fitArgs(d("binary.csv"), "--predictors", "a,b"), code: 1,
+			want: []string{`ordplan: binary.csv: contains NUL bytes: it is a binary file, not CSV text; ordplan reads plain CSV or TSV text, .xlsx workbooks and Parquet files`}},
+		{id: "D52", name: "a binary file named .csv as a plan's data file: at data.file", args: []string{"check"}, plan: edit("file: d.csv", "file: binary.csv"), code: 1,
+			want: []string{`D52.yaml:3:9: data.file: the data file "binary.csv" (looked for binary.csv) contains NUL bytes: it is a binary file, not CSV text; ordplan reads plain CSV or TSV text, .xlsx workbooks and Parquet files`}},
 		{id: "D15", name: "UTF-16 with a byte order mark", args: fitArgs(d("u16.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`u16.csv: is UTF-16 text (it starts with a UTF-16 byte order mark): save it as UTF-8`}},
 		{id: "D16", name: "UTF-16 without a byte order mark", args: []string{"check"}, plan: edit("file: d.csv", "file: u16nobom.csv"), code: 1,
-			want: []string{`u16nobom.csv: is UTF-16 text (every other byte is NUL): save it as UTF-8`}},
+			want: []string{`D16.yaml:3:9: data.file: the data file "u16nobom.csv" (looked for u16nobom.csv) is UTF-16 text (every other byte is NUL): save it as UTF-8`}},
 		{id: "D18", name: "text that is not UTF-8", args: fitArgs(d("latin1.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`latin1.csv: is not UTF-8 text (byte 0xe9 on line 1 is not valid UTF-8; perhaps Latin-1 or Windows-1252): save the file as UTF-8`}},
 		{id: "D19", name: "file in another CSV dialect than the plan says", args: []string{"check"}, plan: edit("file: d.csv", "file: semi.csv"), code: 1,
@@ -1642,7 +1692,39 @@ func catalogue(dir string) (items []badInput) {
 				}
 			}},
 		{id: "X1", name: "malformed .xlsx workbook", args: fitArgs(d("bad.xlsx"), "--predictors", "a,b"), code: 1,
-			want: []string{`bad.xlsx: is not a readable .xlsx workbook (`, `): open and save it again as .xlsx, or export the sheet as CSV`}},
+			want: []string{`ordplan: bad.xlsx: starts like an .xlsx workbook (a ZIP container) but does not end like one (the container's directory, kept at its end, is missing): it is cut short, as by a copy or download that stopped; copy or save it again`}},
+		{id: "X1", name: "a workbook cut short, of a plan: at data.file", args: []string{"check"}, plan: edit("file: d.csv", "file: cut.xlsx"), code: 1,
+			want: []string{`X1.yaml:3:9: data.file: the data file "cut.xlsx" (looked for cut.xlsx) starts like an .xlsx workbook (a ZIP container) but does not end like one (the container's directory, kept at its end, is missing): it is cut short, as by a copy or download that stopped; copy or save it again`}},
+		{id: "X29", name: "a ZIP archive named .xlsx that holds no workbook", args: fitArgs(d("notbook.xlsx"), "--predictors", "a"), code: 1,
+			want: []string{`ordplan: notbook.xlsx: is a ZIP archive but not an .xlsx workbook (it holds no workbook, xl/workbook.xml; its files: "data.csv"): extract the data file from it, or save the sheet as .xlsx`}},
+		{id: "X29", name: "a ZIP archive named .xlsx that holds no workbook, of a plan: at data.file", args: []string{"run"}, plan: edit("file: d.csv", "file: notbook.xlsx"), code: 1,
+			want: []string{`X29.yaml:3:9: data.file: the data file "notbook.xlsx" (looked for notbook.xlsx) is a ZIP archive but not an .xlsx workbook (it holds no workbook, xl/workbook.xml; its files: "data.csv"): extract the data file from it, or save the sheet as .xlsx`}},
+		{id: "I26", name: "an imputed set that is empty, or not a data file: at its key", args: []string{"check"}, plan: edit("file: d.csv", "file: d.csv\n  imputed:\n    files: [d.csv, empty.csv]"), code: 1,
+			want: []string{`I26.yaml:5:20: data.imputed.files[1]: imputed set 2 "empty.csv" (looked for empty.csv) is empty (a header line naming the columns is needed)`},
+			check: func(t *testing.T, dir, out, errs string) {
+				plan := filepath.Join(dir, "I26stacked.yaml")
+				if err := os.WriteFile(plan, []byte(edit("file: d.csv", "file: d.csv\n  imputed: {file: gz.csv, column: imp}")), 0o644); err != nil {
+					t.Fatal(err)
+				}
+				for _, cmd := range []string{"check", "run"} {
+					want := plan + `:4:19: data.imputed.file: the file of imputed sets "gz.csv" (looked for ` + filepath.Join(dir, "gz.csv") + `) is gzip-compressed; ordplan reads plain CSV or TSV text, .xlsx workbooks and Parquet files: decompress it first (gunzip)`
+					if _, e, code := runCLI(cmd, plan); code != 1 || !strings.Contains(e, want) {
+						t.Errorf("%s: exit %d, want %q in\n%s", cmd, code, want, e)
+					}
+				}
+			}},
+		{id: "T38", name: "new rows to predict (inference.predict) in a file that is empty, or not a data file: at the key", args: []string{"check"}, plan: edit("  - choose: {by: aic}\n", "  - choose: {by: aic}\ninference:\n  predict: empty.csv\n"), code: 1,
+			want: []string{`T38.yaml:15:12: inference.predict: the file of new rows "empty.csv" (looked for empty.csv) is empty (a header line naming the columns is needed)`},
+			check: func(t *testing.T, dir, out, errs string) {
+				plan := filepath.Join(dir, "T38folder.yaml")
+				if err := os.WriteFile(plan, []byte(edit("  - choose: {by: aic}\n", "  - choose: {by: aic}\ninference:\n  predict: parts\n")), 0o644); err != nil {
+					t.Fatal(err)
+				}
+				want := plan + `:15:12: inference.predict: the file of new rows "parts" (looked for ` + filepath.Join(dir, "parts") + `) is a folder, not a regular file`
+				if _, e, code := runCLI("run", plan, "--out", filepath.Join(dir, "T38-out")); code != 1 || !strings.Contains(e, want) {
+					t.Errorf("run: exit %d, want %q in\n%s", code, want, e)
+				}
+			}},
 		{id: "X2", name: "CSV text named .xlsx", args: fitArgs(d("notzip.xlsx"), "--predictors", "a,b"), code: 1,
 			want: []string{`notzip.xlsx: is not an .xlsx workbook (it does not start like one, a ZIP container): save it as .xlsx, or give the file a .csv name if it is CSV text`}},
 		{id: "X3", name: "workbook without the named sheet", args: []string{"run"}, plan: edit("file: d.csv", "file: book.xlsx\n  sheet: Results"), code: 1,
@@ -1650,7 +1732,13 @@ func catalogue(dir string) (items []badInput) {
 		{id: "X4", name: "header row below the sheet's last row", args: []string{"run"}, plan: edit("file: d.csv", "file: book.xlsx\n  sheet: survey\n  header_row: 900"), code: 1,
 			want: []string{`book.xlsx: sheet "survey" has `, ` rows, so no header in row 900 (data.header_row, or --header-row)`}},
 		{id: "X5", name: "malformed Parquet file", args: fitArgs(d("bad.parquet"), "--predictors", "a,b"), code: 1,
-			want: []string{`bad.parquet: is not a readable Parquet file (parquet file footer of 1701273954 bytes does not fit in a file of 22 bytes)`}},
+			want: []string{`bad.parquet: is not a readable Parquet file (parquet file footer of 1701273954 bytes does not fit in a file of 22 bytes): it is damaged; write it again`}},
+		{id: "X5", name: "malformed Parquet file of a plan: at data.file", args: []string{"check"}, plan: edit("file: d.csv", "file: bad.parquet"), code: 1,
+			want: []string{`X5.yaml:3:9: data.file: the data file "bad.parquet" (looked for bad.parquet) is not a readable Parquet file (parquet file footer of 1701273954 bytes does not fit in a file of 22 bytes): it is damaged; write it again`}},
+		{id: "X30", name: "a Parquet file cut short", args: fitArgs(d("cut.parquet"), "--predictors", "a"), code: 1,
+			want: []string{`ordplan: cut.parquet: starts like a Parquet file but does not end like one (no PAR1 at its end, before which a Parquet file keeps the description of its columns): it is cut short, as by a copy or download that stopped; copy or write it again`}},
+		{id: "X30", name: "a Parquet file cut short, of a plan: at data.file", args: []string{"run"}, plan: edit("file: d.csv", "file: cut.parquet"), code: 1,
+			want: []string{`X30.yaml:3:9: data.file: the data file "cut.parquet" (looked for cut.parquet) starts like a Parquet file but does not end like one`}},
 		{id: "X15", name: "a Parquet date column used as a number", args: fitArgs(d("dates.parquet"), "--predictors", "a,day"), code: 1,
 			want: []string{"ordplan: dates.parquet:2: column \"day\": value \"2022-01-08\" is not a number; it is a date: a predictor must be a number, so write it as one in a column of its own, such as the days or years since a start date, or declare the column categorical with its values as levels\n"}},
 		{id: "X16", name: "a workbook cell whose formula has no saved value", args: fitArgs(d("formula.xlsx"), "--predictors", "a"), code: 1,

@@ -56,7 +56,7 @@ func TestCheckNoDataSaysWhatItLeftOut(t *testing.T) {
 		"data: every used cell reads as its column's kind (numbers, declared levels, outcome categories), and missing values are as data.missing says",
 		"dictionary: the data's values against the declared ranges, values and missing-value codes",
 		"inference.hypotheses: the boundaries and level columns that the data's categories and levels give the models",
-		"inference.predict: the new rows read through each outcome's design (undeclared levels, levels no row used has, values a transformation cannot take)",
+		"inference.predict: the file of new rows opens and is a data file ordplan reads, and its rows read through each outcome's design (undeclared levels, levels no row used has, values a transformation cannot take)",
 		"inference.profile: whether it lies outside the population fitted, and whether every term can be computed at it",
 		"outcomes: the categories the rows used have (a declared category no row has is refused; at least two are needed)",
 		"predictors: constant or collinear design columns (the rank of each outcome's design on the rows used)",

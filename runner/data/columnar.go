@@ -38,25 +38,32 @@ type columnRecords struct {
 }
 
 // openParquet opens a Parquet file read whole into raw. Only flat files
-// (no nested or repeated columns) are read.
-func openParquet(raw []byte) (rec *columnRecords, msg string) {
+// (no nested or repeated columns) are read. format says that msg is about
+// the file as a whole: not a Parquet file, or one broken or cut short.
+func openParquet(raw []byte) (rec *columnRecords, msg string, format bool) {
 	defer func() {
 		if p := recover(); p != nil {
-			rec, msg = nil, fmt.Sprintf("is not a readable Parquet file (%v)", p)
+			rec, msg, format = nil, fmt.Sprintf("is not a readable Parquet file (%v): it is damaged; write it again", p), true
 		}
 	}()
-	if !bytes.HasPrefix(raw, []byte("PAR1")) || !bytes.HasSuffix(raw, []byte("PAR1")) {
-		return nil, "is not a Parquet file (it does not start and end with PAR1): convert it to Parquet, or give the file a .csv name if it is CSV text"
+	switch {
+	case !bytes.HasPrefix(raw, []byte("PAR1")):
+		if msg := sniff(raw); strings.Contains(msg, "-compressed; ") {
+			return nil, msg, true
+		}
+		return nil, "is not a Parquet file (it does not start and end with PAR1): convert it to Parquet, or give the file a .csv name if it is CSV text", true
+	case !bytes.HasSuffix(raw, []byte("PAR1")):
+		return nil, "starts like a Parquet file but does not end like one (no PAR1 at its end, before which a Parquet file keeps the description of its columns): it is cut short, as by a copy or download that stopped; copy or write it again", true
 	}
 	f, err := parquet.OpenFile(bytes.NewReader(raw), int64(len(raw)))
 	if err != nil {
-		return nil, "is not a readable Parquet file (" + err.Error() + ")"
+		return nil, "is not a readable Parquet file (" + err.Error() + "): it is damaged; write it again", true
 	}
 	cols := f.Schema().Columns()
 	rec = &columnRecords{}
 	for _, path := range cols {
 		if len(path) != 1 {
-			return nil, fmt.Sprintf("column %s is nested; only flat Parquet files (one value per column and row) are read", quoteCell(strings.Join(path, ".")))
+			return nil, fmt.Sprintf("column %s is nested; only flat Parquet files (one value per column and row) are read", quoteCell(strings.Join(path, "."))), false
 		}
 		rec.header = append(rec.header, path[0])
 		leaf, _ := f.Schema().Lookup(path...)
@@ -66,7 +73,7 @@ func openParquet(raw []byte) (rec *columnRecords, msg string) {
 	rec.rd = parquet.NewReader(f)
 	rec.rows, rec.size = f.NumRows(), int64(len(raw))
 	rec.batch = make([]parquet.Row, 0, 1024)
-	return rec, ""
+	return rec, "", false
 }
 
 // row returns the next row's values, valid until the next call; io.EOF

@@ -9,14 +9,23 @@ import (
 	"unicode/utf8"
 )
 
-// ErrEmptyFile and ErrNotRegular are the Err of the Error of a file that
-// holds nothing (not even a header line) and of a path that is not a
-// regular file (CheckRegular): the plan's check names data.file for them
-// (plan.dataHeader).
+// ErrEmptyFile, ErrNotRegular and ErrFileFormat are the Err of the Error
+// of a file that holds nothing (not even a header line), of a path that is
+// not a regular file (CheckRegular), and of a file that as a whole is not
+// in a form ordplan reads (compressed, an archive, binary or UTF-16 text,
+// a workbook or Parquet file that is broken or cut short: sniff,
+// workbookFormat, openParquet): the plan's check names the key of the
+// file for them (data.file, data.parts, data.imputed, inference.predict;
+// plan.unreadableFile).
 var (
 	ErrEmptyFile  = errors.New("file is empty")
 	ErrNotRegular = errors.New("not a regular file")
+	ErrFileFormat = errors.New("not in a form ordplan reads")
 )
+
+// formats is what ordplan reads, for the messages of a file in another
+// form.
+const formats = "ordplan reads plain CSV or TSV text, .xlsx workbooks and Parquet files"
 
 // Error reports a problem with an input file. It renders on one line as
 //

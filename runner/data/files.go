@@ -133,7 +133,7 @@ func readChecked(path string, sum bool) ([]byte, func() string, error) {
 	}
 	if text {
 		if msg := sniff(raw); msg != "" {
-			return nil, nil, &Error{File: path, Msg: msg}
+			return nil, nil, &Error{File: path, Msg: msg, Err: ErrFileFormat}
 		}
 		if bad >= 0 {
 			return nil, nil, &Error{File: path, Msg: notUTF8(raw, bad)}
@@ -333,22 +333,31 @@ func CheckRegular(path string) error {
 }
 
 // sniff names formats that are not CSV text, from the first bytes:
-// compressed files, archives, UTF-16 text (with a byte order mark, or
-// with every other byte NUL), other binary data, and text whose lines end
-// in a carriage return alone. It returns "" for anything else.
+// compressed files, archives (a workbook among them), Parquet files,
+// UTF-16 text (with a byte order mark, or with every other byte NUL),
+// other binary data, and text whose lines end in a carriage return alone.
+// It returns "" for anything else.
 func sniff(b []byte) string {
 	head := b[:min(len(b), 4096)]
+	compressed := func(how, tool string) string {
+		return "is " + how + "-compressed; " + formats + ": decompress it first (" + tool + ")"
+	}
 	switch {
 	case bytes.HasPrefix(head, []byte{0x1f, 0x8b}):
-		return "is gzip-compressed, not CSV text: decompress it first (gunzip)"
+		return compressed("gzip", "gunzip")
 	case bytes.HasPrefix(head, []byte("PK\x03\x04")):
-		return "is a ZIP archive (a spreadsheet workbook?), not CSV text: export or extract the CSV file first"
+		if zipWorkbook(b) {
+			return "is an .xlsx workbook under a name that does not end in .xlsx: give it a name ending in .xlsx"
+		}
+		return "is a ZIP archive, not CSV text; " + formats + ": extract the data file from it first"
+	case bytes.HasPrefix(head, []byte("PAR1")):
+		return "is a Parquet file under a name that does not end in .parquet: give it a name ending in .parquet"
 	case bytes.HasPrefix(head, []byte("BZh")) && len(head) > 3 && head[3] >= '1' && head[3] <= '9':
-		return "is bzip2-compressed, not CSV text: decompress it first (bunzip2)"
+		return compressed("bzip2", "bunzip2")
 	case bytes.HasPrefix(head, []byte{0xfd, '7', 'z', 'X', 'Z', 0}):
-		return "is xz-compressed, not CSV text: decompress it first (unxz)"
+		return compressed("xz", "unxz")
 	case bytes.HasPrefix(head, []byte{0x28, 0xb5, 0x2f, 0xfd}):
-		return "is zstd-compressed, not CSV text: decompress it first (unzstd)"
+		return compressed("zstd", "unzstd")
 	case bytes.HasPrefix(head, []byte{0xff, 0xfe}) || bytes.HasPrefix(head, []byte{0xfe, 0xff}):
 		return "is UTF-16 text (it starts with a UTF-16 byte order mark): save it as UTF-8"
 	}
@@ -366,7 +375,7 @@ func sniff(b []byte) string {
 		if len(head) >= 4 && (even >= len(head)/2-1 && odd == 0 || odd >= len(head)/2-1 && even == 0) {
 			return "is UTF-16 text (every other byte is NUL): save it as UTF-8"
 		}
-		return "contains NUL bytes: it is a binary file, not CSV text"
+		return "contains NUL bytes: it is a binary file, not CSV text; " + formats
 	}
 	if bytes.IndexByte(head, '\r') >= 0 && bytes.IndexByte(head, '\n') < 0 {
 		return "ends its lines with a carriage return alone (CR, an old Mac format): convert the line ends to LF or CRLF"

@@ -5,6 +5,7 @@ import (
 	"compress/gzip"
 	"crypto/sha256"
 	"encoding/hex"
+	"errors"
 	"fmt"
 	"math/rand/v2"
 	"os"
@@ -46,6 +47,8 @@ func TestNotCSVNamed(t *testing.T) {
 		"u16nul.csv":  utf16le(csv, false),
 		"cr.csv":      []byte(strings.ReplaceAll(csv, "\n", "\r")),
 		"zip.csv":     append([]byte("PK\x03\x04"), make([]byte, 40)...),
+		"book.csv":    append(append([]byte("PK\x03\x04"), make([]byte, 26)...), "xl/worksheets/sheet1.xml"...),
+		"pq.csv":      []byte("PAR1\x15\x00"),
 		"binary.csv":  []byte("y,a\n1,\x00\x01\x02\n"),
 		"crlf.csv":    []byte(strings.ReplaceAll(csv, "\n", "\r\n")),
 		"plain.csv":   []byte(csv),
@@ -59,12 +62,14 @@ func TestNotCSVNamed(t *testing.T) {
 		t.Fatal(err)
 	}
 	cases := map[string]string{
-		"gz.csv":      "is gzip-compressed, not CSV text",
+		"gz.csv":      "is gzip-compressed; ordplan reads plain CSV or TSV text, .xlsx workbooks and Parquet files: decompress it first (gunzip)",
+		"book.csv":    "is an .xlsx workbook under a name that does not end in .xlsx: give it a name ending in .xlsx",
+		"pq.csv":      "is a Parquet file under a name that does not end in .parquet: give it a name ending in .parquet",
 		"u16bom.csv":  "is UTF-16 text (it starts with a UTF-16 byte order mark): save it as UTF-8",
 		"u16be.csv":   "is UTF-16 text (it starts",
 		"u16nul.csv":  "is UTF-16 text (every other byte is NUL)",
 		"cr.csv":      "carriage return alone",
-		"zip.csv":     "is a ZIP archive",
+		"zip.csv":     "is a ZIP archive, not CSV text; ordplan reads plain CSV or TSV text, .xlsx workbooks and Parquet files: extract the data file from it first",
 		"binary.csv":  "contains NUL bytes",
 		"fifo.csv":    "is a named pipe (FIFO), not a regular file",
 		"crlf.csv":    "",
@@ -97,6 +102,10 @@ func TestNotCSVNamed(t *testing.T) {
 				t.Errorf("%s %s: %v", what, n, err)
 			case want != "" && (err == nil || !strings.Contains(err.Error(), want) || !strings.HasPrefix(err.Error(), p+": ")):
 				t.Errorf("%s %s: %v, want %q", what, n, err, want)
+			case want != "" && !errors.Is(err, ErrFileFormat) && !errors.Is(err, ErrNotRegular):
+				// The plan's check names the key of such a file
+				// (plan.unreadableFile).
+				t.Errorf("%s %s: %v is not marked ErrFileFormat", what, n, err)
 			}
 		}
 	}

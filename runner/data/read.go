@@ -358,6 +358,15 @@ func (r *reader) whole(in io.Reader) ([]byte, error) {
 	return raw, nil
 }
 
+// formatErr is ErrFileFormat for a file that as a whole is not in a form
+// ordplan reads (format), else nil.
+func formatErr(format bool) error {
+	if format {
+		return ErrFileFormat
+	}
+	return nil
+}
+
 // start sets up the CSV reader, skipping a UTF-8 byte order mark. A
 // compressed, UTF-16, binary or CR-only file is refused, named as such.
 func (r *reader) start(in io.Reader) error {
@@ -366,9 +375,9 @@ func (r *reader) start(in io.Reader) error {
 		if err != nil {
 			return err
 		}
-		cr, msg := openParquet(raw)
+		cr, msg, format := openParquet(raw)
 		if msg != "" {
-			return &Error{File: r.file, Msg: msg}
+			return &Error{File: r.file, Msg: msg, Err: formatErr(format)}
 		}
 		if r.opt.Dialect.DecimalComma {
 			cr.mark = ','
@@ -381,9 +390,9 @@ func (r *reader) start(in io.Reader) error {
 		if err != nil {
 			return err
 		}
-		sr, msg := openSheet(raw, r.opt.Dialect)
+		sr, msg, format := openSheet(raw, r.opt.Dialect)
 		if msg != "" {
-			return &Error{File: r.file, Msg: msg}
+			return &Error{File: r.file, Msg: msg, Err: formatErr(format)}
 		}
 		r.cr = sr
 		return nil
@@ -391,7 +400,7 @@ func (r *reader) start(in io.Reader) error {
 	br := bufio.NewReaderSize(in, 64<<10)
 	head, _ := br.Peek(4096)
 	if msg := sniff(head); msg != "" {
-		return &Error{File: r.file, Msg: msg}
+		return &Error{File: r.file, Msg: msg, Err: ErrFileFormat}
 	}
 	if msg := checkUTF8(head); msg != "" {
 		return &Error{File: r.file, Msg: msg}

@@ -165,21 +165,104 @@ func otherSheets(f *excelize.File, sheet string) string {
 	return "; the workbook's other sheets: " + strings.Join(others, ", ") + " (data.sheet, or --sheet, names the one to read)"
 }
 
-// openSheet reads the workbook in raw and returns the records of the
-// dialect's sheet (chooseSheet: the one visible sheet with cells when
-// none is named), starting at its header row.
-func openSheet(raw []byte, d Dialect) (*sheetRecords, string) {
+// workbookPart is the folder of a ZIP container's entries that makes it
+// an .xlsx workbook (xl/workbook.xml and the sheets), as "[Content_Types].xml"
+// makes it an Office file.
+const workbookPart = "xl/"
+
+// zipHolds says whether the ZIP container in raw holds an entry named
+// name, or under the folder name (ending in /); false when it cannot be
+// read as one.
+func zipHolds(raw []byte, name string) bool {
+	zr, err := zip.NewReader(bytes.NewReader(raw), int64(len(raw)))
+	if err != nil {
+		return false
+	}
+	for _, f := range zr.File {
+		if f.Name == name || strings.HasSuffix(name, "/") && strings.HasPrefix(f.Name, name) {
+			return true
+		}
+	}
+	return false
+}
+
+// zipWorkbook says whether b, a ZIP container or its first bytes, holds
+// an .xlsx workbook: an entry under xl/ (zipHolds), or, when only its
+// first bytes are at hand, a first entry under xl/ or the name
+// xl/workbook.xml among them (a local header names its entry in plain
+// text).
+func zipWorkbook(b []byte) bool {
+	if zipHolds(b, workbookPart) {
+		return true
+	}
+	const nameAt = 30 // the name follows the local header's 30 bytes
+	if len(b) > nameAt && bytes.HasPrefix(b[nameAt:], []byte(workbookPart)) {
+		return true
+	}
+	return bytes.Contains(b[:min(len(b), 4096)], []byte(workbookPart+"workbook.xml"))
+}
+
+// zipEntries lists the first names of the ZIP container in raw, for a
+// message.
+func zipEntries(raw []byte) string {
+	zr, err := zip.NewReader(bytes.NewReader(raw), int64(len(raw)))
+	if err != nil || len(zr.File) == 0 {
+		return "no file"
+	}
+	var names []string
+	for _, f := range zr.File {
+		names = append(names, f.Name)
+	}
+	return "its files: " + quoteList(names)
+}
+
+// workbookFormat says what keeps raw, the bytes of a file named .xlsx,
+// from being read as a workbook at all: compressed, not a ZIP container,
+// a ZIP container cut short (its directory, kept at its end, missing) or
+// holding no workbook, or one whose parts claim impossible sizes
+// (zipSizes); "" when excelize may open it.
+func workbookFormat(raw []byte) string {
+	const again = ": open and save it again as .xlsx, or export the sheet as CSV"
 	if !bytes.HasPrefix(raw, []byte("PK\x03\x04")) {
-		return nil, "is not an .xlsx workbook (it does not start like one, a ZIP container): save it as .xlsx, or give the file a .csv name if it is CSV text"
+		if msg := sniff(raw); strings.Contains(msg, "-compressed; ") {
+			return msg
+		}
+		return "is not an .xlsx workbook (it does not start like one, a ZIP container): save it as .xlsx, or give the file a .csv name if it is CSV text"
+	}
+	// The end of central directory record: 22 bytes and a comment of at
+	// most 65535, at the end of the container.
+	if bytes.LastIndex(raw[max(0, len(raw)-(22+65535)):], []byte("PK\x05\x06")) < 0 {
+		return "starts like an .xlsx workbook (a ZIP container) but does not end like one (the container's directory, kept at its end, is missing): it is cut short, as by a copy or download that stopped; copy or save it again"
+	}
+	if _, err := zip.NewReader(bytes.NewReader(raw), int64(len(raw))); err == nil && !zipHolds(raw, workbookPart) && !zipHolds(raw, "[Content_Types].xml") {
+		return "is a ZIP archive but not an .xlsx workbook (it holds no workbook, xl/workbook.xml; " + zipEntries(raw) + "): extract the data file from it, or save the sheet as .xlsx"
 	}
 	if msg := zipSizes(raw); msg != "" {
-		return nil, "is not a readable .xlsx workbook (" + msg + "): open and save it again as .xlsx, or export the sheet as CSV"
+		return "is not a readable .xlsx workbook (" + msg + ")" + again
+	}
+	return ""
+}
+
+// openSheet reads the workbook in raw and returns the records of the
+// dialect's sheet (chooseSheet: the one visible sheet with cells when
+// none is named), starting at its header row. format says that msg is
+// about the file as a whole: no workbook, or one broken or cut short
+// (workbookFormat).
+func openSheet(raw []byte, d Dialect) (*sheetRecords, string, bool) {
+	if msg := workbookFormat(raw); msg != "" {
+		return nil, msg, true
 	}
 	f, err := excelize.OpenReader(bytes.NewReader(raw))
 	if err != nil {
-		return nil, "is not a readable .xlsx workbook (" + err.Error() + "): open and save it again as .xlsx, or export the sheet as CSV"
+		return nil, "is not a readable .xlsx workbook (" + err.Error() + "): open and save it again as .xlsx, or export the sheet as CSV", true
 	}
 	defer f.Close()
+	sr, msg := readSheet(f, raw, d)
+	return sr, msg, false
+}
+
+// readSheet is openSheet once the workbook f (of bytes raw) is open.
+func readSheet(f *excelize.File, raw []byte, d Dialect) (*sheetRecords, string) {
 	sheet, hidden, msg := chooseSheet(f, d.Sheet)
 	if msg != "" {
 		return nil, msg
