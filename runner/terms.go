@@ -157,13 +157,25 @@ func describeTerms(dz *design.Design, rows string) [][3]string {
 
 // describeCategorical says how a categorical term is coded: its column
 // when the term has another name, the levels kept (and those dropped for
-// having no row), the coding and its reference level.
+// having no row), the coding and its reference level. A level whose
+// column's name does not spell it as written (characters a name cannot
+// hold, a position appended to keep names distinct) is followed by its
+// column, so the reader need not guess which column is which level, and
+// no level is listed twice however many there are.
 func describeCategorical(r design.TermRecord) string {
 	what := "categorical"
 	if r.Reads[0] != r.Term {
 		what += " column " + r.Reads[0]
 	}
-	what += " with levels " + words.AndList(levelWords(r.Levels))
+	columns := levelColumns(r)
+	levels := make([]string, len(r.Levels))
+	for i, l := range r.Levels {
+		levels[i] = levelWord(l)
+		if c, ok := columns[l]; ok && c != r.Term+"."+l {
+			levels[i] += " (column " + c + ")"
+		}
+	}
+	what += " with levels " + words.AndList(levels)
 	if n := len(r.Dropped); n > 0 {
 		what += fmt.Sprintf(" (%s %s, declared but in no row used, dropped)", map[bool]string{true: "level", false: "levels"}[n == 1], words.AndList(levelWords(r.Dropped)))
 	}
@@ -175,7 +187,7 @@ func describeCategorical(r design.TermRecord) string {
 	default:
 		what += fmt.Sprintf(" in treatment coding, one 0/1 column per level other than the reference level %s", levelWord(r.Reference))
 	}
-	return what + levelColumns(r)
+	return what
 }
 
 // levelWord writes a level in a list of levels: as it is, or quoted when
@@ -196,11 +208,9 @@ func levelWords(ls []string) []string {
 	return out
 }
 
-// levelColumns pairs each column of a categorical term with its level
-// when some column name does not spell its level as written (characters
-// a name cannot hold, a position appended to keep names distinct), so
-// the reader need not guess which column is which level.
-func levelColumns(r design.TermRecord) string {
+// levelColumns maps each level of a categorical term that has a column
+// to that column (nil if the columns do not match the levels one to one).
+func levelColumns(r design.TermRecord) map[string]string {
 	var levels []string
 	for j, l := range r.Levels {
 		if (r.Coding == design.Successive && j == 0) || (r.Coding != design.Successive && l == r.Reference) {
@@ -209,18 +219,13 @@ func levelColumns(r design.TermRecord) string {
 		levels = append(levels, l)
 	}
 	if len(levels) != len(r.Columns) {
-		return ""
+		return nil
 	}
-	var pairs []string
-	plain := true
+	out := make(map[string]string, len(levels))
 	for k, c := range r.Columns {
-		plain = plain && c == r.Term+"."+levels[k]
-		pairs = append(pairs, fmt.Sprintf("%s is %q", c, levels[k]))
+		out[levels[k]] = c
 	}
-	if plain {
-		return ""
-	}
-	return " (" + strings.Join(pairs, ", ") + ")"
+	return out
 }
 
 // describeNumeric says how a numeric term is made from its column: the

@@ -592,25 +592,55 @@ func TestExecutorWithTerms(t *testing.T) {
 	}
 }
 
-// The report's description of a categorical term pairs each column with
-// its level when a column name does not spell the level as written, and
-// says nothing more when every name does; a level holding a space is
-// quoted in the list of levels.
+// The report's description of a categorical term follows a level with
+// its column when the column's name does not spell the level as written,
+// and says nothing more when every name does; a level holding a space is
+// quoted in the list of levels. No level is listed twice, however many
+// levels the term has (28 here, some spelled by their columns and some
+// not).
 func TestDescribeTermsPairsColumnsWithLevels(t *testing.T) {
+	var many []string
+	for i := range 28 {
+		if i%7 == 3 {
+			many = append(many, fmt.Sprintf("Town <%02d> north", i))
+		} else {
+			many = append(many, fmt.Sprintf("town_%02d", i))
+		}
+	}
 	for _, c := range []struct {
 		levels []string
 		want   string
 	}{
-		{[]string{"main road", "cul-de-sac", "cul de sac"}, `categorical with levels "main road", cul-de-sac and "cul de sac" in treatment coding, one 0/1 column per level other than the reference level "main road" (g.cul_de_sac is "cul-de-sac", g.cul_de_sac_3 is "cul de sac")`},
+		{[]string{"main road", "cul-de-sac", "cul de sac"}, `categorical with levels "main road", cul-de-sac (column g.cul_de_sac) and "cul de sac" (column g.cul_de_sac_3) in treatment coding, one 0/1 column per level other than the reference level "main road"`},
 		{[]string{"a", "b", "c"}, `categorical with levels a, b and c in treatment coding, one 0/1 column per level other than the reference level a`},
+		{many, ""},
 	} {
 		spec := design.Spec{Sources: []design.Source{{Name: "g", Cat: &design.Categorical{Levels: c.levels, Coding: design.Treatment}}}, Terms: []design.TermSpec{{Name: "g", Source: "g"}}}
-		dz, err := design.Build(spec, []float64{0, 1, 2, 1}, 4, nil, nil)
+		codes := []float64{0, 1, 2, 1}
+		if len(c.levels) == 28 {
+			codes = codes[:0]
+			for i := range 28 {
+				codes = append(codes, float64(i))
+			}
+		}
+		dz, err := design.Build(spec, codes, len(codes), nil, nil)
 		if err != nil {
 			t.Fatal(err)
 		}
-		if got := describeTerms(dz, "the rows used")[0][1]; got != c.want {
+		got := describeTerms(dz, "the rows used")[0][1]
+		if c.want != "" && got != c.want {
 			t.Errorf("got  %s\nwant %s", got, c.want)
+		}
+		for i, l := range c.levels {
+			if len(c.levels) != 28 {
+				break
+			}
+			if n := strings.Count(got, l); i > 0 && n != 1 { // the reference level is named again as such
+				t.Errorf("level %q in %d places: %s", l, n, got)
+			}
+			if i%7 == 3 && !strings.Contains(got, fmt.Sprintf(`"%s" (column g.Town__%02d__north)`, l, i)) {
+				t.Errorf("level %q not followed by its column: %s", l, got)
+			}
 		}
 	}
 }
