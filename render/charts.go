@@ -18,6 +18,7 @@ type chart struct {
 	id      string
 	mark    string // the first line of the title (doc.mark), or ""
 	height  int    // pixels; the width follows the page
+	narrow  int    // pixels of height in a chart narrower than chartNarrow (0: height)
 	caption string
 	option  string  // JSON
 	static  *figure // the same chart as a static image for report.md (nil: none)
@@ -42,13 +43,17 @@ type echartsChart interface {
 // by val, so the same inputs give the same text. "<" is escaped so that
 // no label can end the inline script the option is written into.
 func newChart(fr *chartFrame, caption string, c echartsChart) *chart {
-	c.Accept(fitting{width: fr.legendWidth()})
+	c.Accept(fitting{width: fr.legendWidth(), narrow: fr.narrow})
 	c.Validate()
 	js := strings.TrimSpace(string(c.JSONNotEscaped()))
 	js = strings.ReplaceAll(js, "<", `\u003c`)
 	var n int
 	fmt.Sscanf(fr.id, "chart-%d", &n)
-	return &chart{number: n, id: fr.id, mark: fr.mark, height: fr.height, caption: caption, option: js}
+	ch := &chart{number: n, id: fr.id, mark: fr.mark, height: fr.height, caption: caption, option: js}
+	if fr.narrow != nil {
+		ch.narrow = fr.narrow.height
+	}
+	return ch
 }
 
 // chartFrame is what every chart of the report shares: its fixed element
@@ -66,6 +71,61 @@ type chartFrame struct {
 	// point the library puts on a line's icon. The legend then lists the
 	// entries of legend, which must name every series.
 	lineOnly map[string]bool
+	// yNameBeside: the y axis's name is turned beside the axis, so the
+	// plot leaves it no room above (yNameRoom) but takes that room itself:
+	// the chart keeps the height of the charts beside it, and its x axis
+	// their place.
+	yNameBeside bool
+	narrow      *narrowLayout // set by opts: the layout in a narrow chart, if another
+}
+
+// narrowLayout is a chart's layout when it is narrower than chartNarrow
+// pixels (on a phone): the title and subtitle wrapped to narrowText, the
+// plot's top and bottom margins moved by the lines and legend rows that
+// makes, and the chart's height, so that the plot keeps its size.
+type narrowLayout struct {
+	title, subtitle string
+	top, bottom     string // the grid's margins
+	height          int
+	wide            narrowOption // the same options at the chart's usual width
+}
+
+// narrowOption is what a narrow chart changes of the chart's option: the
+// library's media query (maxWidth, on the chart's own width) applies it.
+type narrowOption struct {
+	Title struct {
+		Text    string `json:"text"`
+		Subtext string `json:"subtext"`
+	} `json:"title"`
+	Grid [1]struct {
+		Top    string `json:"top,omitempty"`
+		Bottom string `json:"bottom,omitempty"`
+	} `json:"grid"`
+}
+
+func newNarrowOption(title, subtitle, top, bottom string) narrowOption {
+	var o narrowOption
+	o.Title.Text, o.Title.Subtext = title, subtitle
+	o.Grid[0].Top, o.Grid[0].Bottom = top, bottom
+	return o
+}
+
+// media is the library's media option: the narrow layout below
+// chartNarrow pixels, the usual one otherwise (a media entry without a
+// query, which the library goes back to when the chart widens again).
+func (n *narrowLayout) media() []any {
+	type query struct {
+		MaxWidth int `json:"maxWidth"`
+	}
+	return []any{
+		struct {
+			Option narrowOption `json:"option"`
+		}{n.wide},
+		struct {
+			Query  query        `json:"query"`
+			Option narrowOption `json:"option"`
+		}{query{chartNarrow - 1}, newNarrowOption(n.title, n.subtitle, n.top, n.bottom)},
+	}
 }
 
 // legendItem is a legend entry whose point is hidden (chartFrame.lineOnly).
@@ -113,15 +173,32 @@ func (fr *chartFrame) legendWidth() int {
 // rows of the legend beyond the first make the chart taller (fr.height
 // grows) so that the plot keeps its size.
 func (fr *chartFrame) opts() []charts.GlobalOpts {
-	title, sub, extra := chartTitle(fr.mark, fr.title, fr.subtitle)
+	// extra pixels above the plot and below it, at a text width.
+	room := func(width float64) (title, sub string, above, below int) {
+		title, sub, above = chartTitle(fr.mark, fr.title, fr.subtitle, width)
+		// The y axis's name stands above the plot, below the subtitle,
+		// which may reach over it at phone width: the plot moves down
+		// clear of it.
+		above += yNameRoom
+		if !fr.legendRight {
+			below = (legendRows(fr.legend, width) - 1) * legendRow
+		}
+		return title, sub, above, below
+	}
+	title, sub, above, below := room(chartTextWidth)
 	grid := fr.grid
 	grid.ContainLabel = opts.Bool(true)
-	grid.Top = addPixels(grid.Top, 60, extra)
-	fr.height += extra
-	if !fr.legendRight {
-		more := (legendRows(fr.legend) - 1) * legendRow
-		grid.Bottom = addPixels(grid.Bottom, 60, more)
-		fr.height += more
+	top, bottom := grid.Top, grid.Bottom
+	beside := 0 // the room the y axis's name leaves the plot
+	if fr.yNameBeside {
+		beside = yNameRoom
+	}
+	grid.Top, grid.Bottom = addPixels(top, 60, above-beside), addPixels(bottom, 60, below)
+	height := fr.height
+	fr.height += above + below
+	if nt, ns, na, nb := room(narrowText); nt != title || ns != sub || na != above || nb != below {
+		fr.narrow = &narrowLayout{title: nt, subtitle: ns, top: addPixels(top, 60, na-beside), bottom: addPixels(bottom, 60, nb),
+			height: height + na + nb, wide: newNarrowOption(title, sub, grid.Top, grid.Bottom)}
 	}
 	return []charts.GlobalOpts{
 		charts.WithInitializationOpts(opts.Initialization{ChartID: fr.id, Width: "100%", Height: strconv.Itoa(fr.height) + "px"}),

@@ -308,16 +308,20 @@ func writePatternSplit(d *doc, or *runner.OutcomeResult) {
 const observedPointSize = 8
 
 // calibrationChart draws, per category, the observed share in each group
-// (points) against the expected share (line).
+// (points) against the expected share (line). Its legend names each
+// category once, in the category's colour, showing and hiding its line
+// and points together (both series carry its name), and then the two
+// marks in grey: the line, expected, and the point, observed (series
+// without data), so that nine categories make eleven entries, not
+// eighteen, and the marks are told apart by their shapes, not colours.
 func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 	t := or.Lipsitz.Table
-	var legend []string
-	shown := suffixedNames(t.Categories, " expected", " observed")
-	for _, lv := range shown {
-		legend = append(legend, lv+" expected", lv+" observed")
-	}
+	shown := suffixedNames(t.Categories)
+	expected, observed := calibrationMarks(shown)
+	legend := append(slices.Clone(shown), expected, observed)
 	fr := d.frame(chartFrame{title: "Observed and expected by group of predicted score", subtitle: or.Chosen.ID, height: 420,
-		grid: opts.Grid{Left: "6%", Right: "8%", Top: "70", Bottom: "70"}, legend: legend})
+		grid: opts.Grid{Left: "6%", Right: "8%", Top: "70", Bottom: "70"}, legend: legend,
+		lineOnly: map[string]bool{expected: true}})
 	l := charts.NewLine()
 	l.SetGlobalOptions(append(fr.opts(),
 		charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: "group", NameLocation: "middle", NameGap: 28}),
@@ -331,6 +335,13 @@ func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 	fig := newFigure("Observed and expected by group of predicted score", "group of predicted score", "share of the group")
 	fig.xNames = groups
 	fig.yMin = 0
+	// The points are twice the library's size: at 4 pixels their colours,
+	// which tell the categories apart, could not be told.
+	points := func(col string) []charts.SeriesOpts {
+		return append(lineStyle(col, 0, false, true),
+			charts.WithLineStyleOpts(opts.LineStyle{Color: col, Width: 0, Opacity: opts.Float(0)}),
+			charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), Symbol: "circle", SymbolSize: observedPointSize}))
+	}
 	for j, lv := range t.Categories {
 		obs, exp := make([]float64, t.Groups), make([]float64, t.Groups)
 		for g := 0; g < t.Groups; g++ {
@@ -338,16 +349,26 @@ func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 			exp[g] = t.Expected[g][j] / t.Weight[g]
 		}
 		col := categoryColor(j, J)
-		l.AddSeries(shown[j]+" expected", lineData(exp), lineStyle(col, 2, false, false)...)
+		l.AddSeries(shown[j], lineData(exp), lineStyle(col, 2, false, false)...)
 		fig.series = append(fig.series, figSeries{name: lv, color: col, ys: exp, legend: true}, figSeries{name: lv + " observed", color: col, ys: obs, points: true, noLine: true})
-		// The points are twice the library's size: at 4 pixels their
-		// colours, which tell the categories apart, could not be told.
-		l.AddSeries(shown[j]+" observed", lineData(obs), append(lineStyle(col, 0, false, true),
-			charts.WithLineStyleOpts(opts.LineStyle{Color: col, Width: 0, Opacity: opts.Float(0)}),
-			charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), Symbol: "circle", SymbolSize: observedPointSize}))...)
+		l.AddSeries(shown[j], lineData(obs), points(col)...)
 	}
+	// The marks' entries: series without data, in grey.
+	l.AddSeries(expected, []opts.LineData{}, lineStyle(colorMark, 2, false, false)...)
+	l.AddSeries(observed, []opts.LineData{}, points(colorMark)...)
 	caption := "For each category, the expected share of each group (line) and the observed share (points). Points far from their line, in a pattern, show where the model misfits; groups are ordered by predicted score."
 	return newChart(fr, caption, l).with(fig)
+}
+
+// calibrationMarks are the legend entries of the calibration chart's
+// marks: expected (the line) and observed (the points), unless a category
+// is shown under one of those names.
+func calibrationMarks(shown []string) (expected, observed string) {
+	expected, observed = "expected", "observed"
+	if slices.Contains(shown, expected) || slices.Contains(shown, observed) {
+		expected, observed = "expected (line)", "observed (points)"
+	}
+	return expected, observed
 }
 
 // shareAxisMax is the top of the calibration chart's axis: the largest

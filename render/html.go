@@ -5,6 +5,7 @@ import (
 	"bytes"
 	"fmt"
 	"html"
+	"strconv"
 	"strings"
 	"unicode"
 
@@ -22,10 +23,12 @@ const css = `body{font-family:system-ui,-apple-system,"Segoe UI",sans-serif;max-
 table{border-collapse:collapse;margin:0.6em 0 1.2em;font-size:0.9em}th,td{border:1px solid #ccc;padding:0.25em 0.6em;text-align:left;vertical-align:top}
 th{background:#f2f2f2}td{white-space:nowrap}td[style*="right"],th[style*="right"]{font-variant-numeric:tabular-nums}td:not([style*="right"]):not([style*="center"]){white-space:normal;min-width:8em;max-width:38em;overflow-wrap:break-word}
 .table-wrap{overflow-x:auto;max-width:100%;margin:0.6em 0 1.2em}.table-wrap table{margin:0}
+.table-wrap.scrolls::before{content:"Scroll sideways for more columns \2192";display:block;position:sticky;left:0;font-size:0.8em;color:#555;margin-bottom:0.2em}
+.table-wrap.scrolls:not(.at-end){-webkit-mask-image:linear-gradient(to right,#000 calc(100% - 2.5em),rgba(0,0,0,0.25));mask-image:linear-gradient(to right,#000 calc(100% - 2.5em),rgba(0,0,0,0.25))}
 nav.toc ul{margin:0.2em 0}tr:nth-child(even) td{background:#fafafa}code{background:#f4f4f4;padding:0 0.2em}h2{border-bottom:2px solid #ddd;padding-bottom:0.2em;margin-top:2em}
 .chart-group{display:flex;flex-wrap:wrap;gap:1em;margin:1em 0 1.5em}.chart-figure{flex:1 1 480px;margin:0;border:1px solid #e3e3e3;padding:0.5em;min-width:0}
 .chart-figure.wide{flex-basis:100%}.chart{width:100%}figcaption{font-size:0.85em;color:#444;margin-top:0.3em}
-.chart-tools{font-size:0.8em;color:#555;margin-top:0.3em}.chart-tools button{font-size:1em;padding:0.1em 0.6em;margin-left:0.2em;border:1px solid #bbb;background:#f7f7f7;border-radius:3px;cursor:pointer}@media print{.chart-tools{display:none}}
+.chart-tools{font-size:0.8em;color:#555;margin-top:0.3em}.chart-tools button{font-size:1em;padding:0.1em 0.6em;margin-left:0.2em;border:1px solid #bbb;background:#f7f7f7;border-radius:3px;cursor:pointer}@media print{.chart-tools,.table-wrap.scrolls::before{display:none}.table-wrap.scrolls:not(.at-end){-webkit-mask-image:none;mask-image:none}}
 .why{display:inline-block;max-width:16em;white-space:normal}
 @media (max-width:600px){td:not([style*="right"]):not([style*="center"]){min-width:5em}}
 #js-errors{white-space:pre-wrap;color:#a00;border:2px solid #a00;padding:0.5em;margin:1em 0}#js-errors:empty{display:none}`
@@ -37,17 +40,31 @@ const errorScript = `window.ordplanError=function(msg){var e=document.getElement
 window.onerror=function(msg,src,line){window.ordplanError("script error: "+msg+" (line "+line+")");};
 (function(){var ce=console.error;console.error=function(){window.ordplanError("console.error: "+Array.prototype.join.call(arguments," "));return ce.apply(console,arguments);};})();`
 
+// tableScript marks a table box whose table is wider than the box (class
+// scrolls: the table scrolls sideways in it, which a phone shows by
+// nothing else), with a note above the table and its right edge faded
+// until the box is scrolled to its end (class at-end), on loading, on
+// every change of the window's size and as the box scrolls.
+const tableScript = `(function(){function end(w){w.classList.toggle("at-end",w.scrollLeft+w.clientWidth>=w.scrollWidth-1);}
+function mark(){var ws=document.querySelectorAll(".table-wrap");for(var i=0;i<ws.length;i++){var w=ws[i];w.classList.toggle("scrolls",w.scrollWidth>w.clientWidth+1);end(w);}}
+document.addEventListener("scroll",function(e){var w=e.target;if(w.classList&&w.classList.contains("table-wrap")){end(w);}},true);
+window.addEventListener("resize",mark);mark();})();`
+
 // drawScript draws one chart, marks its element with data-rendered="1"
 // and keeps the chart and its option for the export buttons: PNG from the
 // drawn chart, SVG from a copy drawn once, off screen, by the library's SVG
-// renderer.
-const drawScript = `var ordplanCharts={};
-function ordplanDraw(id,option){var el=document.getElementById(id);try{var c=echarts.init(el,null,{renderer:"canvas"});c.setOption(option);ordplanCharts[id]={chart:c,option:option};el.setAttribute("data-rendered","1");window.addEventListener("resize",function(){c.resize();});}catch(e){window.ordplanError(id+": "+e);}}
+// renderer. A chart narrower than chartNarrow pixels (NARROW) takes the
+// height of its data-narrow attribute, if it has one, before it is drawn
+// and whenever the window's size changes: its option's media query wraps
+// its titles there and moves its plot by the same lines (narrowLayout).
+var drawScript = strings.ReplaceAll(`var ordplanCharts={};
+function ordplanHeight(el){var n=el.getAttribute("data-narrow");if(!n){return;}if(!el.hasAttribute("data-height")){el.setAttribute("data-height",el.style.height);}el.style.height=el.clientWidth<NARROW?n+"px":el.getAttribute("data-height");}
+function ordplanDraw(id,option){var el=document.getElementById(id);try{ordplanHeight(el);var c=echarts.init(el,null,{renderer:"canvas"});c.setOption(option);ordplanCharts[id]={chart:c,option:option};el.setAttribute("data-rendered","1");window.addEventListener("resize",function(){ordplanHeight(el);c.resize();});}catch(e){window.ordplanError(id+": "+e);}}
 function ordplanSave(url,name){var a=document.createElement("a");a.href=url;a.download=name;document.body.appendChild(a);a.click();document.body.removeChild(a);}
 function ordplanExport(id,kind){var k=ordplanCharts[id];if(!k){window.ordplanError(id+": not drawn, nothing to export");return;}try{if(kind==="png"){ordplanSave(k.chart.getDataURL({type:"png",pixelRatio:2,backgroundColor:"#ffffff"}),id+".png");return;}
 var el=document.getElementById(id),box=document.createElement("div");box.style.cssText="position:absolute;left:-10000px;top:0;width:"+el.clientWidth+"px;height:"+el.clientHeight+"px";document.body.appendChild(box);
 var s=echarts.init(box,null,{renderer:"svg"});s.setOption(k.option);var url=s.getDataURL({type:"svg",backgroundColor:"#ffffff"});s.dispose();document.body.removeChild(box);ordplanSave(url,id+".svg");}catch(e){window.ordplanError(id+": export failed: "+e);}}
-document.addEventListener("click",function(ev){var b=ev.target.closest?ev.target.closest("button[data-export]"):null;if(b){ordplanExport(b.getAttribute("data-chart"),b.getAttribute("data-export"));}});`
+document.addEventListener("click",function(ev){var b=ev.target.closest?ev.target.closest("button[data-export]"):null;if(b){ordplanExport(b.getAttribute("data-chart"),b.getAttribute("data-export"));}});`, "NARROW", strconv.Itoa(chartNarrow))
 
 // html renders the self-contained report.html: the report's Markdown as
 // HTML, each chart group where report.md has its note, the chart library
@@ -90,9 +107,13 @@ func (d *doc) html(title string) ([]byte, error) {
 			if len(pt.charts) == 1 {
 				class += " wide"
 			}
-			fmt.Fprintf(&out, "<figure class=\"%s\"><div class=\"chart\" id=\"%s\" style=\"height:%dpx\"></div><figcaption><b>Figure %d.</b> %s</figcaption>"+
+			narrow := ""
+			if c.narrow > 0 {
+				narrow = fmt.Sprintf(" data-narrow=\"%d\"", c.narrow)
+			}
+			fmt.Fprintf(&out, "<figure class=\"%s\"><div class=\"chart\" id=\"%s\" style=\"height:%dpx\"%s></div><figcaption><b>Figure %d.</b> %s</figcaption>"+
 				"<div class=\"chart-tools\">Save: <button type=\"button\" data-export=\"png\" data-chart=\"%s\">PNG</button> <button type=\"button\" data-export=\"svg\" data-chart=\"%s\">SVG</button></div></figure>\n",
-				class, c.id, c.height, c.number, html.EscapeString(c.caption), c.id, c.id)
+				class, c.id, c.height, narrow, c.number, html.EscapeString(c.caption), c.id, c.id)
 		}
 		out.WriteString("</div>\n")
 	}
@@ -104,6 +125,9 @@ func (d *doc) html(title string) ([]byte, error) {
 			fmt.Fprintf(&out, "ordplanDraw(%q,%s);\n", c.id, c.option)
 		}
 		out.WriteString("</script>\n")
+	}
+	if strings.Contains(out.String(), `<div class="table-wrap">`) {
+		out.WriteString("<script>\n" + tableScript + "\n</script>\n")
 	}
 	out.WriteString("</body>\n</html>\n")
 	return out.Bytes(), nil

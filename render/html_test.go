@@ -165,4 +165,20 @@ func TestTablesScrollAndFitPhones(t *testing.T) {
 	if !strings.Contains(css, `@media (max-width:600px){td:not([style*="right"]):not([style*="center"]){min-width:5em}}`) {
 		t.Errorf("no narrower word columns on small screens")
 	}
+	// A table wider than its box says so: the page's script marks the box
+	// (scrolls), which shows a note above the table and fades its right
+	// edge until the box is scrolled to its end (at-end); report.md is
+	// not touched. A page without tables has no such script.
+	if !strings.Contains(h, tableScript) || !strings.Contains(css, `.table-wrap.scrolls::before{content:"Scroll sideways for more columns`) ||
+		!strings.Contains(css, `.table-wrap.scrolls:not(.at-end){-webkit-mask-image:linear-gradient(to right,`) {
+		t.Errorf("no cue that a wide table scrolls sideways")
+	}
+	if strings.Contains(string(d.markdown()), "Scroll sideways") {
+		t.Errorf("report.md has the cue of report.html")
+	}
+	e := &doc{}
+	e.p("No table here.")
+	if page, err := e.html("t"); err != nil || strings.Contains(string(page), tableScript) {
+		t.Errorf("a page without tables has the tables' script (%v)", err)
+	}
 }

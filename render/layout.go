@@ -20,9 +20,16 @@ import (
 // ellipsis; the full name stays in the tooltip, the caption or the table.
 
 // chartTextWidth is the width, in pixels, that a chart's title, subtitle
-// and legend may take: a chart of report.html is at least 480 pixels wide
-// (the chart-figure style) less its padding.
-const chartTextWidth = 440
+// and legend may take: a chart of report.html is at least chartNarrow
+// pixels wide (the chart-figure style) less its padding, except on a
+// narrow screen (a phone), where the chart takes the screen's width and
+// its text gets narrowText pixels (a chart 310 pixels wide on a screen of
+// 360, less the title's padding).
+const (
+	chartTextWidth = 440
+	chartNarrow    = 480
+	narrowText     = 300
+)
 
 // ellipsis ends a shortened text.
 const ellipsis = "…"
@@ -92,8 +99,10 @@ func fitMiddle(s string, w float64, m func(string) float64) string {
 // (one entry per suffix) show it, each entry within legendTextMax: a
 // name too long is cut in its middle (fitMiddle) so that the suffix,
 // which tells one name's entries apart, stays whole, instead of the
-// library cutting the entry's end, suffix included. The names stay whole
-// if cut names would coincide (the library then cuts them).
+// library cutting the entry's end, suffix included. Without suffixes,
+// names that differ at their ends (the calibration chart's categories)
+// keep their ends apart so. The names stay whole if cut names would
+// coincide (the library then cuts them).
 func suffixedNames(names []string, suffixes ...string) []string {
 	m := widthAt(legendSize)
 	out := make([]string, len(names))
@@ -179,29 +188,27 @@ const (
 	yNameRoom      = 20          // pixels between the subtitle and the plot for the y axis's name
 )
 
-// chartTitle wraps a chart's title and subtitle to the chart's text
-// width; extra is how many pixels more than one line each they take,
-// and the room for the y axis's name.
-func chartTitle(mark, title, subtitle string) (t, s string, extra int) {
-	tl := wrap(title, chartTextWidth, titleLines, widthAt(1.12*titleSize)) // bold
+// chartTitle wraps a chart's title and subtitle to a text width of
+// width pixels; extra is how many pixels more than one line each they
+// take.
+func chartTitle(mark, title, subtitle string, width float64) (t, s string, extra int) {
+	tl := wrap(title, width, titleLines, widthAt(1.12*titleSize)) // bold
 	if mark != "" {
 		tl = append([]string{mark}, tl...)
 	}
 	extra = (len(tl) - 1) * titleLine
 	if subtitle != "" {
-		sl := wrap(subtitle, chartTextWidth, subtitleLines, widthAt(subtitleSize))
+		sl := wrap(subtitle, width, subtitleLines, widthAt(subtitleSize))
 		extra += (len(sl) - 1) * subtitleLine
 		s = strings.Join(sl, "\n")
 	}
-	// The y axis's name stands above the plot, below the subtitle, which
-	// may reach over it at phone width: the plot moves down clear of it.
-	extra += yNameRoom
 	return strings.Join(tl, "\n"), s, extra
 }
 
 // legendRows is how many rows a legend at the bottom of a chart takes for
-// these entries (each shown at most legendTextMax wide).
-func legendRows(names []string) int {
+// these entries (each shown at most legendTextMax wide) in a text width
+// of width pixels.
+func legendRows(names []string, width float64) int {
 	rows, x := 1, 0.0
 	seen := map[string]bool{}
 	for _, n := range names {
@@ -210,7 +217,7 @@ func legendRows(names []string) int {
 		}
 		seen[n] = true
 		w := min(textWidth(n, legendSize), legendTextMax) + legendIconRoom
-		if x > 0 && x+w > chartTextWidth {
+		if x > 0 && x+w > width {
 			rows++
 			x = 0
 		}
@@ -286,7 +293,15 @@ func (l categoryLabels) axisLabel(size int) *opts.AxisLabel {
 // point sits on the frame), and the style of a y axis's name.
 type fitting struct {
 	charts.BaseConfigurationVisitor
-	width int
+	width  int
+	narrow *narrowLayout // the layout of a narrow chart, if another (chartFrame.narrow)
+}
+
+// Visit adds the layout of a narrow chart as the library's media option.
+func (f fitting) Visit(obj map[string]any) {
+	if f.narrow != nil {
+		obj["media"] = f.narrow.media()
+	}
 }
 
 // nameStyle is the style of a y axis's name above the plot: it starts at

@@ -60,9 +60,16 @@ func TestSimulatedMarkOnEveryOutput(t *testing.T) {
 	}
 	page := string(sim["report.html"])
 	charts := regexp.MustCompile(`ordplanDraw\("chart-[0-9]+",`).FindAllString(page, -1)
-	titles := regexp.MustCompile(`"title":\{"text":"SIMULATED DATA\\n`).FindAllString(page, -1)
+	// The chart's own title (its option's keys come sorted, the title's
+	// after others), then those of its layouts for narrow and usual
+	// widths (the first key of a media option).
+	titles := regexp.MustCompile(`,"title":\{"text":"SIMULATED DATA\\n`).FindAllString(page, -1)
 	if len(charts) == 0 || len(titles) != len(charts) {
 		t.Errorf("%d of %d charts of report.html have the mark as their title's first line", len(titles), len(charts))
+	}
+	media := regexp.MustCompile(`"option":\{"title":\{"text":"([^"\\]|\\n)`).FindAllString(page, -1)
+	if marked := regexp.MustCompile(`"option":\{"title":\{"text":"SIMULATED DATA\\n`).FindAllString(page, -1); len(marked) != len(media) {
+		t.Errorf("%d of %d layouts of charts at a narrow or usual width have the mark as their title's first line", len(marked), len(media))
 	}
 	md := string(sim["report.md"])
 	methods := md[strings.Index(md, "## Methods (draft)"):]

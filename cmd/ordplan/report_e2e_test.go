@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"context"
+	"fmt"
 	"image/png"
 	"os"
 	"os/exec"
@@ -188,6 +189,89 @@ func TestReportRendersInBrowser(t *testing.T) {
 		b, _ := os.ReadFile(shot)
 		if err := os.WriteFile(filepath.Join(keep, "report.png"), b, 0o644); err != nil {
 			t.Error(err)
+		}
+	}
+}
+
+// TestReportAtPhoneWidth opens the example's report.html in headless
+// Chromium 400 pixels wide, as a phone shows it: every chart is drawn, a
+// chart whose titles wrap at that width takes its narrow height
+// (data-narrow, which keeps its plot's size), the others keep theirs, and
+// a table wider than the screen is marked as scrolling sideways (the note
+// above it and the faded edge), while a narrow table is not; at 1400
+// pixels no chart changes height and no table of the models is marked.
+func TestReportAtPhoneWidth(t *testing.T) {
+	if testing.Short() {
+		t.Skip("browser test skipped in -short mode")
+	}
+	if _, err := os.Stat(chromiumPath); err != nil {
+		t.Skipf("browser test skipped: %s is not installed (Debian: apt-get install -y chromium)", chromiumPath)
+	}
+	dir := t.TempDir()
+	out := filepath.Join(dir, "out")
+	stdout, stderr, code := runCLI("run", filepath.Join("..", "..", "plans", "example.yaml"), "--out", out, "--quiet")
+	if code != 0 {
+		t.Fatalf("ordplan run: exit %d\n%s%s", code, stdout, stderr)
+	}
+	page, err := filepath.Abs(filepath.Join(out, "report.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	chartTag := regexp.MustCompile(`<div class="chart" id="(chart-\d+)" style="height: ?(\d+)px[^"]*"( data-narrow="(\d+)")?[^>]*>`)
+	wraps := regexp.MustCompile(`<div class="table-wrap( [^"]*)?">`)
+	for _, width := range []int{400, 1400} {
+		dom, _ := chromium(t, filepath.Join(dir, fmt.Sprint("profile", width)), page, "--dump-dom", fmt.Sprintf("--window-size=%d,3000", width))
+		if m := errorsBox.FindStringSubmatch(dom); m == nil || strings.TrimSpace(m[1]) != "" {
+			t.Errorf("%d px: script errors: %v", width, m)
+		}
+		charts, narrowed := 0, 0
+		for _, m := range chartTag.FindAllStringSubmatch(dom, -1) {
+			charts++
+			tag := m[0]
+			if !strings.Contains(tag, `data-rendered="1"`) {
+				t.Errorf("%d px: %s not drawn", width, m[1])
+			}
+			if m[4] == "" {
+				continue
+			}
+			if width == 400 {
+				narrowed++
+				if m[2] != m[4] {
+					t.Errorf("%d px: %s is %s px high, want its narrow height %s", width, m[1], m[2], m[4])
+				}
+			} else if m[2] == m[4] {
+				t.Errorf("%d px: %s took its narrow height %s", width, m[1], m[4])
+			}
+		}
+		if charts < 3 || (width == 400 && narrowed == 0) {
+			t.Errorf("%d px: %d charts, %d at a narrow height", width, charts, narrowed)
+		}
+		marked, all := 0, 0
+		for _, m := range wraps.FindAllStringSubmatch(dom, -1) {
+			all++
+			if strings.Contains(m[1], "scrolls") {
+				marked++
+			}
+		}
+		// The table of the models' fit has nine columns: it scrolls at 400
+		// pixels and not at 1400; the tables of two or three columns
+		// (the data dictionary's) scroll at neither.
+		fit := strings.Index(dom, "Overall fit: each candidate")
+		if fit < 0 {
+			t.Fatalf("%d px: no table of overall fit", width)
+		}
+		m := wraps.FindStringSubmatch(dom[fit:])
+		if m == nil {
+			t.Fatalf("%d px: no box after the overall fit's caption", width)
+		}
+		if got := strings.Contains(m[1], "scrolls"); got != (width == 400) {
+			t.Errorf("%d px: the table of overall fit marked scrolling: %v", width, got)
+		}
+		if width == 400 && (marked == 0 || marked == all) {
+			t.Errorf("%d px: %d of %d tables marked scrolling, want some, not all", width, marked, all)
+		}
+		if width == 1400 && marked == all {
+			t.Errorf("%d px: every table marked scrolling", width)
 		}
 	}
 }
