@@ -402,7 +402,8 @@ func writePlan(d *doc, r *runner.Result) {
 		fmt.Fprintf(&d.b, "%d. `%s` (plan line %d)\n", i+1, rule.Kind, rule.Line)
 	}
 	d.b.WriteString("\n")
-	for _, n := range r.Notes {
+	// The run's notes, names escaped and the plan's hypotheses as code.
+	for _, n := range r.RunNotes(mdText, mdCode) {
 		d.p("%s", n)
 	}
 }

@@ -1,6 +1,7 @@
 package render
 
 import (
+	"encoding/json"
 	"fmt"
 	"math"
 	"math/rand/v2"
@@ -8,6 +9,8 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"ordplan/runner"
 )
 
 // The outcome's data sentence (rows dropped, naming the columns) and its
@@ -181,5 +184,40 @@ sensitivity:
 		"under each analysis, `*y*`\n")
 	if strings.Contains(page, "<em>y</em>") {
 		t.Error("report.html shows the outcome *y* in italics")
+	}
+}
+
+// TestRunNotesBuiltInRender: the run's notes are built where they are
+// written: in the report the imputed sets' file names and the remarks are
+// escaped (a file *b*_c_.csv is not shown in italics, <i>d</i>.csv not
+// dropped as raw HTML) and the plan's hypotheses are code spans, whatever
+// they hold; decisions.json carries the same notes in plain text, the
+// names as written and the hypotheses quoted, no Markdown.
+func TestRunNotesBuiltInRender(t *testing.T) {
+	res := runPlan(t, goldenPlan, 2)
+	res.ImputedCopies = []runner.ImputedCopy{{Earlier: 1, Set: 2, EarlierFile: "sets/*b*_c_.csv", File: "sets/<i>d</i>.csv", SHA256: "ab12"}}
+	res.Notes = append(res.Notes, "A remark on column *w*.")
+	res.Multiplicity = &runner.MultiplicityFamily{Method: "holm", Size: 2,
+		Outside: []runner.OutsideHypothesis{{Text: "x`1` = *y*", Line: 9, Model: "cumulative/parallel/logit", Elsewhere: true}}}
+	files := outputsOf(t, res)
+	md, page := string(files["report.md"]), string(files["report.html"])
+	hasAll(t, "report.md", md,
+		`Imputed sets 1 and 2 (sets/\*b\*\_c\_.csv and sets/\<i>d\</i>.csv) hold the same bytes (sha256 ab12)`,
+		`A remark on column \*w\*.`,
+		"descriptively): ``x`1` = *y*`` (plan line 9) in cumulative/parallel/logit.")
+	hasAll(t, "report.html (visible text)", visibleText(page),
+		"(sets/*b*_c_.csv and sets/<i>d</i>.csv)", "A remark on column *w*.", "x`1` = *y* (plan line 9)")
+	var dec struct{ Notes []string }
+	if err := json.Unmarshal(files["decisions.json"], &dec); err != nil {
+		t.Fatal(err)
+	}
+	hasAll(t, "decisions.json's notes", strings.Join(dec.Notes, "\n"),
+		"Imputed sets 1 and 2 (sets/*b*_c_.csv and sets/<i>d</i>.csv) hold the same bytes",
+		"A remark on column *w*.",
+		"descriptively): \"x`1` = *y*\" (plan line 9) in cumulative/parallel/logit.")
+	for _, n := range dec.Notes {
+		if strings.Contains(n, `\*`) || strings.Contains(n, "``") || strings.Contains(n, "`x") {
+			t.Errorf("decisions.json's note holds Markdown: %s", n)
+		}
 	}
 }

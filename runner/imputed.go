@@ -8,6 +8,7 @@ import (
 	"strconv"
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/plan"
 	"ordplan/render/numfmt"
 	"ordplan/runner/data"
@@ -920,20 +921,45 @@ func pinImputed(a *Analysis) ([]DataRef, func(), error) {
 	return refs, release, nil
 }
 
-// ImputedCopies notes the imputed files (data.imputed.files, their
-// references with hashes as run.json records them) that hold the same
-// bytes as an earlier set: sets drawn apart coincide only where few values are
-// missing, and a set copied twice understates the variance between the
-// sets. One note for each such set, naming the earlier one and the hash.
-func ImputedCopies(refs []DataRef) []string {
-	var out []string
+// ImputedCopy is an imputed file (data.imputed.files) holding the same
+// bytes as an earlier set: sets drawn apart coincide only where few
+// values are missing, and a set copied twice understates the variance
+// between the sets.
+type ImputedCopy struct {
+	Earlier, Set int // 1-based numbers of the sets
+	EarlierFile  string
+	File         string
+	SHA256       string
+}
+
+// FindImputedCopies finds the imputed files (their references with hashes
+// as run.json records them) that hold the same bytes as an earlier set:
+// one for each such set, naming the earlier one.
+func FindImputedCopies(refs []DataRef) []ImputedCopy {
+	var out []ImputedCopy
 	for j, r := range refs {
 		if i := slices.IndexFunc(refs[:j], func(e DataRef) bool { return e.SHA256 == r.SHA256 }); i >= 0 {
-			out = append(out, fmt.Sprintf("Imputed sets %d and %d (%s and %s) hold the same bytes (sha256 %s): sets drawn apart coincide only where few values are missing; if one is a copy of the other, the variance between the imputed sets, and with it every pooled interval and test, is understated: give each set its own draws", i+1, j+1, refs[i].File, r.File, r.SHA256))
+			out = append(out, ImputedCopy{Earlier: i + 1, Set: j + 1, EarlierFile: refs[i].File, File: r.File, SHA256: r.SHA256})
 		}
 	}
 	return out
 }
+
+// Note says what c means, the files' names written by name (as they are
+// in plain text; escaped for the report).
+func (c ImputedCopy) Note(name func(string) string) string {
+	return fmt.Sprintf("Imputed sets %d and %d (%s and %s) hold the same bytes (sha256 %s): sets drawn apart coincide only where few values are missing; if one is a copy of the other, the variance between the imputed sets, and with it every pooled interval and test, is understated: give each set its own draws", c.Earlier, c.Set, name(c.EarlierFile), name(c.File), c.SHA256)
+}
+
+// ImputedCopies are the warnings, in plain text, of the imputed files
+// that hold the same bytes as an earlier set (FindImputedCopies).
+func ImputedCopies(refs []DataRef) []string {
+	return words.Each(FindImputedCopies(refs), func(c ImputedCopy) string { return c.Note(PlainText) })
+}
+
+// PlainText writes a name as it is: the words of stderr and
+// decisions.json (the report escapes names for Markdown instead).
+func PlainText(s string) string { return s }
 
 // pooledLinear is the D1 test of a linear hypothesis in a pooled fit.
 // pooledContrasts estimates each restriction of hy on the pooled fit by

@@ -133,25 +133,16 @@ func adjustHypotheses(an *Analysis, res *Result) {
 		}
 	}
 	adj := adjustP(method, ps)
-	name := MultiplicityName(method)
 	for k, r := range refs {
 		v := adj[k]
 		hr := &res.Outcomes[r.or].Hypotheses[r.h]
 		hr.Adjusted = &v
 		hr.Adjustment = method
 	}
-	note := fmt.Sprintf("Multiplicity: the p-values of the plan's hypotheses in the chosen models are adjusted by %s over a family of %d tests (every hypothesis of every outcome with a chosen model)", name, len(ps))
-	if left > 0 {
-		are := "are"
-		if left == 1 {
-			are = "is"
-		}
-		note += fmt.Sprintf("; %s in a chosen model could not be computed and %s not in the family", words.Count(left, "hypothesis test", "hypothesis tests"), are)
-	}
+	fam := &MultiplicityFamily{Method: method, Size: len(ps), NotComputed: left}
 	// A hypothesis naming parameters the chosen model does not have is not
 	// tested there, so it is not in the family either: say which, and
 	// whether another candidate of the outcome tests it.
-	var elsewhere, nowhere []string
 	for _, or := range res.Outcomes {
 		if or.Chosen == nil {
 			continue
@@ -161,12 +152,53 @@ func adjustHypotheses(an *Analysis, res *Result) {
 			if slices.ContainsFunc(or.Hypotheses, func(hr HypothesisResult) bool { return same(hr) && hr.Model == or.Chosen.ID }) {
 				continue
 			}
-			what := fmt.Sprintf("`%s` (plan line %d) in %s", h.Text, h.Line, or.Chosen.ID)
-			if slices.ContainsFunc(or.Hypotheses, func(hr HypothesisResult) bool { return same(hr) && hr.Model != "" }) {
-				elsewhere = append(elsewhere, what)
-			} else {
-				nowhere = append(nowhere, what)
-			}
+			fam.Outside = append(fam.Outside, OutsideHypothesis{Text: h.Text, Line: h.Line, Model: or.Chosen.ID,
+				Elsewhere: slices.ContainsFunc(or.Hypotheses, func(hr HypothesisResult) bool { return same(hr) && hr.Model != "" })})
+		}
+	}
+	res.Multiplicity = fam
+}
+
+// MultiplicityFamily is the family of the plan's hypothesis tests whose
+// p-values a run adjusts for multiplicity (Result.Multiplicity).
+type MultiplicityFamily struct {
+	Method      string // plan.MultiplicityHolm or plan.MultiplicityBH
+	Size        int    // tests in the family
+	NotComputed int    // hypothesis tests in a chosen model that could not be computed
+	// Outside are the hypotheses a chosen model does not test, as it
+	// lacks a parameter they name.
+	Outside []OutsideHypothesis
+}
+
+// OutsideHypothesis is a hypothesis of the plan left out of the family
+// since an outcome's chosen model does not have every parameter it names.
+type OutsideHypothesis struct {
+	Text  string // as the plan writes it
+	Line  int    // of the plan
+	Model string // the chosen model
+	// Elsewhere: another fitted candidate of the outcome tests it.
+	Elsewhere bool
+}
+
+// Note says what the family is, in one sentence: names (models) written
+// by name and hypotheses by hypothesis, as they are in plain text
+// (PlainText, strconv.Quote) or as the report writes them.
+func (m *MultiplicityFamily) Note(name, hypothesis func(string) string) string {
+	note := fmt.Sprintf("Multiplicity: the p-values of the plan's hypotheses in the chosen models are adjusted by %s over a family of %d tests (every hypothesis of every outcome with a chosen model)", MultiplicityName(m.Method), m.Size)
+	if m.NotComputed > 0 {
+		are := "are"
+		if m.NotComputed == 1 {
+			are = "is"
+		}
+		note += fmt.Sprintf("; %s in a chosen model could not be computed and %s not in the family", words.Count(m.NotComputed, "hypothesis test", "hypothesis tests"), are)
+	}
+	var elsewhere, nowhere []string
+	for _, h := range m.Outside {
+		what := fmt.Sprintf("%s (plan line %d) in %s", hypothesis(h.Text), h.Line, name(h.Model))
+		if h.Elsewhere {
+			elsewhere = append(elsewhere, what)
+		} else {
+			nowhere = append(nowhere, what)
 		}
 	}
 	if len(elsewhere) > 0 {
@@ -175,5 +207,19 @@ func adjustHypotheses(an *Analysis, res *Result) {
 	if len(nowhere) > 0 {
 		note += "; not in the family, since no fitted candidate model of the outcome has every parameter it names (those that would have them did not fit, or the names are another outcome's): " + strings.Join(nowhere, ", ")
 	}
-	res.Notes = append(res.Notes, note+".")
+	return note + "."
+}
+
+// RunNotes are the run's notes, in order: imputed sets that are copies,
+// the run-level remarks (Notes) and the multiplicity family; text writes
+// names and the remarks, hypothesis the plan's hypotheses. decisions.json
+// takes them in plain text (PlainText, strconv.Quote), the report in
+// Markdown with names escaped.
+func (r *Result) RunNotes(text, hypothesis func(string) string) []string {
+	out := words.Each(r.ImputedCopies, func(c ImputedCopy) string { return c.Note(text) })
+	out = append(out, words.Each(r.Notes, text)...)
+	if r.Multiplicity != nil {
+		out = append(out, r.Multiplicity.Note(text, hypothesis))
+	}
+	return out
 }

@@ -2,6 +2,7 @@ package runner
 
 import (
 	"math"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -87,8 +88,8 @@ func TestAdjustHypothesesFamily(t *testing.T) {
 			t.Errorf("%s in %s adjusted", h.Text, h.Model)
 		}
 	}
-	if len(res.Notes) != 1 || !strings.Contains(res.Notes[0], "over a family of 3 tests") || !strings.Contains(res.Notes[0], "1 hypothesis test in a chosen model could not be computed") {
-		t.Errorf("notes %q", res.Notes)
+	if notes := res.RunNotes(PlainText, strconv.Quote); len(notes) != 1 || !strings.Contains(notes[0], "over a family of 3 tests") || !strings.Contains(notes[0], "1 hypothesis test in a chosen model could not be computed") {
+		t.Errorf("notes %q", notes)
 	}
 }
 
@@ -106,10 +107,15 @@ func TestAdjustHypothesesNamesThoseLeftOut(t *testing.T) {
 	p := &plan.Plan{Inference: plan.Inference{Hypotheses: []plan.Hypothesis{{Text: "h1", Line: 6}, {Text: "x[1] = x[2]", Line: 7}, {Text: "z[1] = 0", Line: 8}}, Multiplicity: plan.MultiplicityHolm}}
 	res := &Result{Plan: p, Outcomes: []*OutcomeResult{a}}
 	adjustHypotheses(ResolvePlan(p), res)
-	if len(res.Notes) != 1 || !strings.Contains(res.Notes[0], "over a family of 1 tests") ||
-		!strings.Contains(res.Notes[0], "not in the family, since the chosen model does not have every parameter it names (it is tested only in the other candidates that have them, descriptively): `x[1] = x[2]` (plan line 7) in m1;") ||
-		!strings.Contains(res.Notes[0], "not in the family, since no fitted candidate model of the outcome has every parameter it names (those that would have them did not fit, or the names are another outcome's): `z[1] = 0` (plan line 8) in m1.") {
-		t.Errorf("notes %q", res.Notes)
+	// In plain text (decisions.json) the hypotheses are quoted; the
+	// report writes them as code (render's test).
+	if notes := res.RunNotes(PlainText, strconv.Quote); len(notes) != 1 || !strings.Contains(notes[0], "over a family of 1 tests") ||
+		!strings.Contains(notes[0], `not in the family, since the chosen model does not have every parameter it names (it is tested only in the other candidates that have them, descriptively): "x[1] = x[2]" (plan line 7) in m1;`) ||
+		!strings.Contains(notes[0], `not in the family, since no fitted candidate model of the outcome has every parameter it names (those that would have them did not fit, or the names are another outcome's): "z[1] = 0" (plan line 8) in m1.`) {
+		t.Errorf("notes %q", notes)
+	}
+	if res.Multiplicity == nil || len(res.Multiplicity.Outside) != 2 || !res.Multiplicity.Outside[0].Elsewhere || res.Multiplicity.Outside[1].Elsewhere || len(res.Notes) != 0 {
+		t.Errorf("family %+v, notes %q", res.Multiplicity, res.Notes)
 	}
 	if a.Hypotheses[1].Adjusted != nil || a.Hypotheses[0].Adjusted == nil || *a.Hypotheses[0].Adjusted != 0.01 {
 		t.Errorf("adjusted: %+v", a.Hypotheses)

@@ -9,6 +9,7 @@ import (
 	"path/filepath"
 	"runtime"
 	"slices"
+	"strconv"
 
 	"ordplan/plan"
 	"ordplan/plan/lock"
@@ -301,7 +302,7 @@ func BuildDecisions(r *Result) *Decisions {
 		Plan:    PlanRef{File: filepath.Base(p.Path), Title: p.Title, SHA256: p.Hash},
 		Data:    dataRef(r),
 		NewRows: newRowsRef(r),
-		Notes:   nonNil(r.Notes), Registration: registrationRecord(r.Registration), Simulated: r.Simulated}
+		Notes:   nonNil(r.RunNotes(PlainText, strconv.Quote)), Registration: registrationRecord(r.Registration), Simulated: r.Simulated}
 	if d.Registration != nil {
 		d.Registration.EarlierRegistered = r.EarlierRegistered
 		d.Registration.UnderEarlierLocks = r.UnderEarlierLocks

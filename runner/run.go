@@ -75,7 +75,7 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 	}
 	defer unpinImputed()
 	res.Imputed = imputed
-	res.Notes = append(res.Notes, ImputedCopies(imputed)...)
+	res.ImputedCopies = FindImputedCopies(imputed)
 	if err := ValidateData(p); err != nil {
 		return nil, err
 	}

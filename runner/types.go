@@ -24,8 +24,14 @@ type Result struct {
 	columns  []OutcomeColumns
 	Version  string
 	Outcomes []*OutcomeResult
-	Notes    []string // run-level remarks (covariance, weights)
-	Started  string   // UTC start time, only when the plan asks for timestamps
+	Notes    []string // run-level remarks (covariance, weights), in plain text
+	// ImputedCopies are the imputed sets holding the same bytes as an
+	// earlier set (FindImputedCopies).
+	ImputedCopies []ImputedCopy
+	// Multiplicity is the family of hypothesis tests whose p-values the
+	// run adjusts (nil: none adjusted).
+	Multiplicity *MultiplicityFamily
+	Started      string // UTC start time, only when the plan asks for timestamps
 
 	GoVersion string // the Go release the program was built with
 	Revision  string // the source revision of the build (Revision; "": not stamped)
