@@ -47,7 +47,7 @@ func TestHeldSharesSaid(t *testing.T) {
 		return "version: 1\ntitle: shares\ndata: {file: d.csv}\noutcomes: [{column: y}]\ncategorical:\n  site: {levels: [a, b, c]}\npredictors: [site, x, treated]\n" +
 			"models: {approaches: [cumulative], effects: [parallel], links: [logit]}\nrules:\n  - choose: {by: aic}\ninference:\n" + inference
 	}
-	const held = "At this point the column `treated`, which holds only 0 and 1 in the data, is held at its mean, the share of rows at 1 (treated 0.4): no row of the data has such a value"
+	const held = "At this point the column `treated`, which holds only 0 and 1, is held at its mean, the share of rows at 1 (treated 0.4): no row of the data has such a value"
 	md := string(renderSource(t, dir, plan("  marginal_effects: [average, means, profile]\n  profile: {x: 1}\n  level_pairs: {predictors: [site]}\n"), 0)["report.md"])
 	hasAll(t, "report.md", md,
 		held+", so these effects are those of no one who exists and, the model not being linear, not the mix of the effects at 0 and at 1 in those shares either (the effect of such a column itself sets it to 0 and to 1 at this point). The average marginal effects above, each row's own effect at its own values averaged over the rows used, are the reading to prefer",

@@ -6,7 +6,6 @@ import (
 	"slices"
 	"strings"
 
-	"ordplan/internal/words"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/design"
@@ -200,16 +199,7 @@ func heldSharesNote(d *doc, or *runner.OutcomeResult, set runner.MarginalSet, wh
 	if len(names) == 0 {
 		return
 	}
-	var code []string
-	for _, n := range names {
-		code = append(code, mdCode(n))
-	}
-	cols := "column " + code[0] + ", which holds only 0 and 1 in the data, is"
-	it := "its mean, the share of rows at 1"
-	if len(names) > 1 {
-		cols = "columns " + words.AndList(code) + ", which hold only 0 and 1 in the data, are"
-		it = "their means, the shares of rows at 1"
-	}
+	cols, it := heldColumns(names)
 	average := "The average marginal effects above"
 	switch i := slices.IndexFunc(or.Marginal, func(m runner.MarginalSet) bool { return m.Kind == "average" }); {
 	case what == "differences":

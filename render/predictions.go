@@ -62,16 +62,7 @@ func heldShare(d *doc, r *runner.Result, or *runner.OutcomeResult, fixed map[str
 	if len(names) == 0 {
 		return
 	}
-	var code []string
-	for _, n := range names {
-		code = append(code, mdCode(n))
-	}
-	cols := "column " + code[0] + ", which holds only 0 and 1, is"
-	it := "its mean, the share of rows at 1"
-	if len(names) > 1 {
-		cols = "columns " + words.AndList(code) + ", which hold only 0 and 1, are"
-		it = "their means, the shares of rows at 1"
-	}
+	cols, it := heldColumns(names)
 	s := fmt.Sprintf("In these predictions the %s held at %s (%s): no person (no row of the data) has such a value, so the predictions are for no one who exists, and, the model not being linear, they are not the mix of the predictions at 0 and at 1 in those shares either.", cols, it, mdText(strings.Join(held, ", ")))
 	var chance []string
 	if r.Plan != nil {
@@ -400,4 +391,18 @@ func focusAxis(name string) opts.XAxis {
 // chart's width (the caption gives it whole).
 func axisName(name string) string {
 	return fitWidth(name, chartTextWidth-40, widthAt(12))
+}
+
+// heldColumns names columns holding only 0 and 1 that a point holds at
+// their mean, for a sentence: "column `pilot`, which holds only 0 and 1,
+// is" held at "its mean, the share of rows at 1" (plural for several).
+func heldColumns(names []string) (cols, it string) {
+	var code []string
+	for _, n := range names {
+		code = append(code, mdCode(n))
+	}
+	if len(names) > 1 {
+		return "columns " + words.AndList(code) + ", which hold only 0 and 1, are", "their means, the shares of rows at 1"
+	}
+	return "column " + code[0] + ", which holds only 0 and 1, is", "its mean, the share of rows at 1"
 }
