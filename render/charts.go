@@ -43,7 +43,7 @@ type echartsChart interface {
 // by val, so the same inputs give the same text. "<" is escaped so that
 // no label can end the inline script the option is written into.
 func newChart(fr *chartFrame, caption string, c echartsChart) *chart {
-	c.Accept(fitting{width: fr.legendWidth(), narrow: fr.narrow})
+	c.Accept(fitting{width: fr.legendWidth(), narrow: fr.narrow, tooltip: fr.tooltipNames})
 	c.Validate()
 	js := strings.TrimSpace(string(c.JSONNotEscaped()))
 	js = strings.ReplaceAll(js, "<", `\u003c`)
@@ -77,6 +77,9 @@ type chartFrame struct {
 	// their place.
 	yNameBeside bool
 	narrow      *narrowLayout // set by opts: the layout in a narrow chart, if another
+	// tooltipNames are the names the axis tooltip gives the series, in
+	// their order, where series share a name (nil: their own names).
+	tooltipNames []string
 }
 
 // narrowLayout is a chart's layout when it is narrower than chartNarrow

@@ -319,9 +319,15 @@ func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 	shown := suffixedNames(t.Categories)
 	expected, observed := calibrationMarks(shown)
 	legend := append(slices.Clone(shown), expected, observed)
+	// The axis tooltip names each series whole, category and mark, as
+	// the series of a category share its name.
+	var tooltip []string
+	for _, c := range t.Categories {
+		tooltip = append(tooltip, c+" expected", c+" observed")
+	}
 	fr := d.frame(chartFrame{title: "Observed and expected by group of predicted score", subtitle: or.Chosen.ID, height: 420,
 		grid: opts.Grid{Left: "6%", Right: "8%", Top: "70", Bottom: "70"}, legend: legend,
-		lineOnly: map[string]bool{expected: true}})
+		lineOnly: map[string]bool{expected: true}, tooltipNames: append(tooltip, expected, observed)})
 	l := charts.NewLine()
 	l.SetGlobalOptions(append(fr.opts(),
 		charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: "group", NameLocation: "middle", NameGap: 28}),

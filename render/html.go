@@ -53,13 +53,17 @@ window.addEventListener("resize",mark);mark();})();`
 // drawScript draws one chart, marks its element with data-rendered="1"
 // and keeps the chart and its option for the export buttons: PNG from the
 // drawn chart, SVG from a copy drawn once, off screen, by the library's SVG
-// renderer. A chart narrower than chartNarrow pixels (NARROW) takes the
+// renderer. A chart whose series share names (a legend entry showing and
+// hiding several at once) names each series in its axis tooltip by its
+// option's ordplanTooltip (chartFrame.tooltipNames), escaped as the
+// library escapes series names. A chart narrower than chartNarrow pixels (NARROW) takes the
 // height of its data-narrow attribute, if it has one, before it is drawn
 // and whenever the window's size changes: its option's media query wraps
 // its titles there and moves its plot by the same lines (narrowLayout).
 var drawScript = strings.ReplaceAll(`var ordplanCharts={};
 function ordplanHeight(el){var n=el.getAttribute("data-narrow");if(!n){return;}if(!el.hasAttribute("data-height")){el.setAttribute("data-height",el.style.height);}el.style.height=el.clientWidth<NARROW?n+"px":el.getAttribute("data-height");}
-function ordplanDraw(id,option){var el=document.getElementById(id);try{ordplanHeight(el);var c=echarts.init(el,null,{renderer:"canvas"});c.setOption(option);ordplanCharts[id]={chart:c,option:option};el.setAttribute("data-rendered","1");window.addEventListener("resize",function(){ordplanHeight(el);c.resize();});}catch(e){window.ordplanError(id+": "+e);}}
+function ordplanTooltip(option){var n=option.ordplanTooltip;if(!n){return;}delete option.ordplanTooltip;var e=echarts.format.encodeHTML;option.tooltip.formatter=function(ps){var s=e(String(ps[0].axisValueLabel));for(var i=0;i<ps.length;i++){var p=ps[i],v=p.value;s+="<br>"+p.marker+e(n[p.seriesIndex])+" <b>"+e(String(v==null?"-":v))+"</b>";}return s;};}
+function ordplanDraw(id,option){var el=document.getElementById(id);try{ordplanHeight(el);ordplanTooltip(option);var c=echarts.init(el,null,{renderer:"canvas"});c.setOption(option);ordplanCharts[id]={chart:c,option:option};el.setAttribute("data-rendered","1");window.addEventListener("resize",function(){ordplanHeight(el);c.resize();});}catch(e){window.ordplanError(id+": "+e);}}
 function ordplanSave(url,name){var a=document.createElement("a");a.href=url;a.download=name;document.body.appendChild(a);a.click();document.body.removeChild(a);}
 function ordplanExport(id,kind){var k=ordplanCharts[id];if(!k){window.ordplanError(id+": not drawn, nothing to export");return;}try{if(kind==="png"){ordplanSave(k.chart.getDataURL({type:"png",pixelRatio:2,backgroundColor:"#ffffff"}),id+".png");return;}
 var el=document.getElementById(id),box=document.createElement("div");box.style.cssText="position:absolute;left:-10000px;top:0;width:"+el.clientWidth+"px;height:"+el.clientHeight+"px";document.body.appendChild(box);

@@ -293,14 +293,21 @@ func (l categoryLabels) axisLabel(size int) *opts.AxisLabel {
 // point sits on the frame), and the style of a y axis's name.
 type fitting struct {
 	charts.BaseConfigurationVisitor
-	width  int
-	narrow *narrowLayout // the layout of a narrow chart, if another (chartFrame.narrow)
+	width   int
+	narrow  *narrowLayout // the layout of a narrow chart, if another (chartFrame.narrow)
+	tooltip []string      // chartFrame.tooltipNames
 }
 
-// Visit adds the layout of a narrow chart as the library's media option.
+// Visit adds the layout of a narrow chart as the library's media option,
+// and the series' names in the axis tooltip as ordplanTooltip, which the
+// page's script (drawScript) takes out of the option and makes the
+// tooltip's formatter of.
 func (f fitting) Visit(obj map[string]any) {
 	if f.narrow != nil {
 		obj["media"] = f.narrow.media()
+	}
+	if f.tooltip != nil {
+		obj["ordplanTooltip"] = f.tooltip
 	}
 }
 

@@ -23,7 +23,8 @@ type chartOption struct {
 	Series []struct {
 		Name string `json:"name"`
 	} `json:"series"`
-	Media []struct {
+	Tooltip []string `json:"ordplanTooltip"`
+	Media   []struct {
 		Query *struct {
 			MaxWidth int `json:"maxWidth"`
 		} `json:"query"`
@@ -170,7 +171,8 @@ func chartHeight(t *testing.T, h, id string) int {
 // the entry shows and hides both) and then the marks in grey, the line
 // (expected, drawn as a line alone, as the slope charts' interval is) and
 // the point (observed): with nine categories eleven entries, not
-// eighteen. A category named as a mark does not take the mark's entry.
+// eighteen; the axis tooltip still names each series whole. A category
+// named as a mark does not take the mark's entry.
 func TestCalibrationLegendGroupsCategories(t *testing.T) {
 	files := renderPlan(t, goldenPlan, 2)
 	found := false
@@ -206,6 +208,24 @@ func TestCalibrationLegendGroupsCategories(t *testing.T) {
 		}
 		if count["neutral"] != 2 || count["expected"] != 1 || count["observed"] != 1 {
 			t.Errorf("%s: series %v, want each category's line and points under its name and one series per mark", c[1], count)
+		}
+		// The axis tooltip names each series whole (the page's script
+		// makes its formatter of ordplanTooltip), since a category's two
+		// series share its name.
+		if len(opt.Tooltip) != len(opt.Series) {
+			t.Fatalf("%s: tooltip names %q for %d series", c[1], opt.Tooltip, len(opt.Series))
+		}
+		for i, s := range opt.Series {
+			want := s.Name + " expected"
+			if i%2 == 1 {
+				want = s.Name + " observed"
+			}
+			if i >= len(opt.Series)-2 {
+				want = s.Name
+			}
+			if opt.Tooltip[i] != want {
+				t.Errorf("%s: series %d (%s) named %q in the tooltip, want %q", c[1], i, s.Name, opt.Tooltip[i], want)
+			}
 		}
 	}
 	if !found {

@@ -274,4 +274,32 @@ func TestReportAtPhoneWidth(t *testing.T) {
 			t.Errorf("%d px: every table marked scrolling", width)
 		}
 	}
+
+	// The calibration chart's axis tooltip names each series whole
+	// (category and mark), though a category's line and points share its
+	// name in the legend: a copy of the page shows the tooltip at group 3
+	// and copies it into the page.
+	src, err := os.ReadFile(page)
+	if err != nil {
+		t.Fatal(err)
+	}
+	i := bytes.Index(src, []byte("Observed and expected by group of predicted score"))
+	m := regexp.MustCompile(`ordplanDraw\("(chart-\d+)"`).FindAllSubmatch(src[:max(i, 0)], -1)
+	if i < 0 || len(m) == 0 {
+		t.Fatal("no calibration chart")
+	}
+	id := string(m[len(m)-1][1])
+	probe := string(src)
+	end := strings.LastIndex(probe, "</body>")
+	probe = probe[:end] + `<script>setTimeout(function(){ordplanCharts["` + id + `"].chart.dispatchAction({type:"showTip",seriesIndex:0,dataIndex:2});},300);` +
+		`setTimeout(function(){var p=document.createElement("pre");p.className="tip";var d=document.getElementById("` + id + `").querySelectorAll("div");for(var i=0;i<d.length;i++){if(d[i].innerHTML.indexOf("<br>")>=0){p.textContent=d[i].textContent;}}document.body.appendChild(p);},1500);</script>` + probe[end:]
+	probePage := filepath.Join(dir, "tooltip.html")
+	if err := os.WriteFile(probePage, []byte(probe), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	dom, _ := chromium(t, filepath.Join(dir, "profile3"), probePage, "--dump-dom", "--window-size=1400,3000")
+	tip := regexp.MustCompile(`<pre class="tip">([^<]*)</pre>`).FindStringSubmatch(dom)
+	if tip == nil || !strings.HasPrefix(tip[1], "3") || !strings.Contains(tip[1], "very_unsafe expected 0.") || !strings.Contains(tip[1], "very_safe observed 0.") {
+		t.Errorf("calibration tooltip at group 3: %q, want each series named with its category and mark", tip)
+	}
 }
