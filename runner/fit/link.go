@@ -196,6 +196,12 @@ func (l Link) ratio(z float64) (v, d1, d2 float64, ok bool) {
 		if !(a <= 30) {
 			return 0, 0, 0, false
 		}
+		if a <= probitFast {
+			// the two tails from the tables (probitNear): no erfc
+			lv, ll := probitNear(z, false)
+			uv, ul := probitNear(-z, false)
+			return lv - uv, ll + ul, ul*(ul-z) - ll*(z+ll), true
+		}
 		small := 0.5 * math.Erfc(a/math.Sqrt2)
 		large := 1 - small
 		neg := z < 0
@@ -429,6 +435,15 @@ func cauchyCDF(z float64) float64 {
 
 // logPhi is log Phi(z), accurate far into the lower tail.
 func logPhi(z float64) float64 {
+	if math.Abs(z) <= probitFast {
+		v, _ := probitNear(z, true)
+		return v
+	}
+	if z > 0 {
+		// log1p(-Q), Q = 1 - Phi(z): log Phi keeps its digits where Phi
+		// rounds to 1.
+		return fastLog1p(-0.5 * math.Erfc(z/math.Sqrt2))
+	}
 	if z > -30 {
 		return fastLog(0.5 * math.Erfc(-z/math.Sqrt2))
 	}
@@ -443,9 +458,17 @@ var (
 	logPi        = math.Log(math.Pi)
 )
 
-// logPhiMills is logPhi(z) and millsInv(z), the same values, from one
-// erfc (or one continued fraction far in the lower tail).
+// logPhiMills is logPhi(z) and millsInv(z), the same values: from the
+// table of probitNear, beyond it from one erfc (or one continued fraction
+// far in the lower tail).
 func logPhiMills(z float64) (float64, float64) {
+	if math.Abs(z) <= probitFast {
+		return probitNear(z, false)
+	}
+	if z > 0 {
+		Q := 0.5 * math.Erfc(z/math.Sqrt2)
+		return fastLog1p(-Q), fastExp(-0.5*z*z-logHalfTwoPi) / (1 - Q)
+	}
 	if z > -30 {
 		P := 0.5 * math.Erfc(-z/math.Sqrt2)
 		return fastLog(P), fastExp(-0.5*z*z-logHalfTwoPi) / P
@@ -456,6 +479,13 @@ func logPhiMills(z float64) (float64, float64) {
 
 // millsInv is phi(z)/Phi(z).
 func millsInv(z float64) float64 {
+	if math.Abs(z) <= probitFast {
+		_, lam := probitNear(z, false)
+		return lam
+	}
+	if z > 0 {
+		return fastExp(-0.5*z*z-logHalfTwoPi) / (1 - 0.5*math.Erfc(z/math.Sqrt2))
+	}
 	if z > -30 {
 		return fastExp(-0.5*z*z-logHalfTwoPi) / (0.5 * math.Erfc(-z/math.Sqrt2))
 	}

@@ -1,6 +1,7 @@
 package fit
 
 import (
+	"fmt"
 	"math"
 	"testing"
 )
@@ -17,7 +18,14 @@ func mathLower(l Link, z float64) tail {
 		if z > -30 {
 			P := 0.5 * math.Erfc(-z/math.Sqrt2)
 			lam := math.Exp(-0.5*z*z-0.5*math.Log(2*math.Pi)) / P
-			return tail{math.Log(P), lam, -lam * (z + lam)}
+			v := math.Log(P)
+			if z > 0 {
+				// log1p of -(1 - P) = -erfc(z/sqrt2)/2: log P keeps
+				// its digits where P rounds to 1 (the fast tail
+				// forms it so).
+				v = math.Log1p(-0.5 * math.Erfc(z/math.Sqrt2))
+			}
+			return tail{v, lam, -lam * (z + lam)}
 		}
 		r := millsRatio(-z)
 		lam := 1 / r
@@ -128,7 +136,7 @@ func mathBetween(l Link, a, b float64) (m middle, ok bool) {
 // Subnormal references are compared to 1e-300 absolute; infinite and NaN
 // ones, and the refused categories, exactly.
 func TestLinkFastAgreesWithMath(t *testing.T) {
-	worst := 0.0
+	worst, worstAt := 0.0, ""
 	// near: |got - want| <= tol * scale.
 	near := func(what string, l Link, z, got, want, tol, scale float64) {
 		t.Helper()
@@ -139,8 +147,8 @@ func TestLinkFastAgreesWithMath(t *testing.T) {
 			return
 		}
 		e := math.Abs(got - want)
-		if e > 1e-300 {
-			worst = max(worst, e/(tol*scale))
+		if e > 1e-300 && e/(tol*scale) > worst {
+			worst, worstAt = e/(tol*scale), fmt.Sprintf("%s %s(%g)", l, what, z)
 		}
 		if !(e <= tol*scale || e <= 1e-300) {
 			t.Errorf("%s %s(%g): %.17g, with package math %.17g (%.2g of the tolerance)", l, what, z, got, want, e/(tol*scale))
@@ -164,8 +172,15 @@ func TestLinkFastAgreesWithMath(t *testing.T) {
 				if up {
 					got, want = l.upper(z), mathUpper(l, z)
 				}
-				near("tail value", l, z, got.v, want.v, 1e-14, math.Abs(want.v))
-				near("tail value alone", l, z, l.logTail(z, up), want.v, 1e-14, math.Abs(want.v))
+				// A probit tail's value near 0 is -Q, Q = 1 - F the other
+				// tail, whose relative error from z's rounding is z^2
+				// times z's (z phi/Q ~ z^2): its scale takes kappa.
+				kv := 1.0
+				if l == Probit {
+					kv = kz
+				}
+				near("tail value", l, z, got.v, want.v, 1e-14, kv*math.Abs(want.v))
+				near("tail value alone", l, z, l.logTail(z, up), want.v, 1e-14, kv*math.Abs(want.v))
 				near("tail first derivative", l, z, got.d1, want.d1, 1e-14, kz*math.Abs(want.d1))
 				near("tail second derivative", l, z, got.d2, want.d2, 2e-14, kz*math.Abs(want.d2))
 			}
@@ -203,5 +218,54 @@ func TestLinkFastAgreesWithMath(t *testing.T) {
 			}
 		}
 	}
-	t.Logf("largest difference: %.2g of its tolerance", worst)
+	t.Logf("largest difference: %.2g of its tolerance, at %s", worst, worstAt)
+}
+
+// TestProbitTailDense checks the probit's tables (probitNear: log Phi and
+// phi/Phi by Taylor polynomials about the centres k/32) against package
+// math's erfc (mathLower) densely: 40001 points over [-8.5, 8.5], the
+// ends of every interval between centres (c +- 1/64) and both sides of
+// the switch to the longer polynomials at 2, and the tails beyond 8.5
+// where the erfc paths take over. Tolerances as in
+// TestLinkFastAgreesWithMath: 1e-14 times the value's size and its
+// condition number 1 + z^2 (z phi/Q ~ z^2 where log Phi is about -Q, and
+// the reference's own erfc(z/sqrt2) carries z's rounding times z^2), 2e-14
+// for the second derivative -lam (z + lam), which cancels in the lower
+// tail. The largest relative differences are logged in units of 1e-16
+// (1 + z^2).
+func TestProbitTailDense(t *testing.T) {
+	var zs []float64
+	for i := -20000; i <= 20000; i++ {
+		zs = append(zs, float64(i)*probitFast/20000)
+	}
+	for k := -probitMid; k <= probitMid; k++ {
+		c := float64(k) / probitPerUnit
+		zs = append(zs, c-1.0/64, math.Nextafter(c-1.0/64, 0), c+1.0/64, math.Nextafter(c+1.0/64, 0))
+	}
+	zs = append(zs, 2, math.Nextafter(2, 3), 2+1.0/64, math.Nextafter(2+1.0/64, 3), 8.5, math.Nextafter(8.5, 9), 9, 20, 29.9, -8.5, math.Nextafter(-8.5, -9), -9, -29.9, -30.1)
+	worst := [3]float64{}
+	for _, z := range zs {
+		got, want := Probit.lower(z), mathLower(Probit, z)
+		kz := 1 + z*z
+		for i, c := range []struct {
+			what           string
+			got, want, tol float64
+		}{
+			{"log Phi", got.v, want.v, 1e-14},
+			{"phi/Phi", got.d1, want.d1, 1e-14},
+			{"second derivative", got.d2, want.d2, 2e-14},
+		} {
+			e := math.Abs(c.got - c.want)
+			if !(e <= c.tol*kz*math.Abs(c.want) || e <= 1e-300) {
+				t.Errorf("probit %s(%.17g): %.17g, with package math %.17g", c.what, z, c.got, c.want)
+			}
+			if c.want != 0 {
+				worst[i] = max(worst[i], e/(1e-16*kz*math.Abs(c.want)))
+			}
+		}
+		if v := Probit.logTail(z, false); v != got.v {
+			t.Errorf("probit logTail(%g) = %v, lower's value %v", z, v, got.v)
+		}
+	}
+	t.Logf("largest differences in 1e-16 (1 + z^2) relative: log Phi %.3g, phi/Phi %.3g, second derivative %.3g", worst[0], worst[1], worst[2])
 }

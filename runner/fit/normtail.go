@@ -1,0 +1,132 @@
+package fit
+
+import "math"
+
+// The probit link's tails in the row kernels: log Phi(z) and its
+// derivative lam = phi(z)/Phi(z) by short Taylor polynomials about the
+// centres c = k/32, |z| <= probitFast. Package math's erfc branches five
+// ways on its argument and divides, and the tail then took a logarithm,
+// an exponential and a division more: at every row and equation of a
+// kernel that was half of a stage probit kernel's time. Here a tail is
+// two polynomials of degree 7 and 6 with no branch on z's sign and no
+// division.
+//
+// The coefficients: lam solves lam' = -lam (z + lam), so with z = c + u
+// and lam = sum l_k u^k, (k+1) l_(k+1) = -(c l_k + l_(k-1) + sum_(i<=k)
+// l_i l_(k-i)); log Phi = b_0 + sum_(k>=1) l_(k-1) u^k / k. b_0 = log
+// Phi(c) and l_0 = lam(c) come from package math's erfc (as log1p of
+// -erfc(c/sqrt2)/2 from c > 0 on, log Phi then near 0). The equation is
+// stable forward (a perturbation of lam decays as e^(-int (z + 2 lam)),
+// z + 2 lam > 0) and |u| <= 1/64, so an error in l_0 stays within a
+// factor e^(8.5/64) along the interval. log Phi's singularities nearest
+// the real axis (erfc's complex zeros) are 2.8 away from it, so the
+// coefficients shrink at least as 2.8^-k and the eighth term is below
+// (64 2.8)^-8, 1e-18, of the scale. linkfast_test.go
+// (TestLinkFastAgreesWithMath, TestProbitTailDense) compares the tails
+// with package math's erfc.
+
+const (
+	probitPerUnit = 32
+	probitFast    = 8.5 // |z| served by the tables
+	probitMid     = int(probitFast * probitPerUnit)
+	probitDeg     = 8
+	// Above 0 log Phi is -Q, Q = 1 - Phi, and lam about phi: relative to
+	// them the terms fall only as (c u)^k / k!. lam's polynomial, of
+	// degree 7 (8 from log Phi), leaves (c/64)^8 / 8! of it, 2e-17 at c =
+	// 2; from there on the centres keep terms to the 11th power
+	// (probitHigh): (8.5/64)^11 / 11! is 6e-18.
+	probitSplit   = 2 * probitPerUnit
+	probitHighDeg = 11
+)
+
+// probitLow holds, for each centre c = (k - 272)/32 <= 2, the Taylor
+// coefficients b_0..b_8 of log Phi about c and, for the derivative, k b_k
+// (k = 1..8); probitHigh the same to the 11th power for the centres c =
+// (k + 64)/32 above 2 to 8.5 (Phi above 0.977: tails that far out are
+// few, and the branch to them seldom taken).
+var (
+	probitLow [probitMid + probitSplit + 1]struct {
+		b  [probitDeg + 1]float64
+		db [probitDeg]float64
+	}
+	probitHigh [probitMid - probitSplit + 1]struct {
+		b  [probitHighDeg + 1]float64
+		db [probitHighDeg]float64
+	}
+)
+
+func init() {
+	for k := range probitLow {
+		t := &probitLow[k]
+		probitTaylor(float64(k-probitMid)/probitPerUnit, t.b[:], t.db[:])
+	}
+	for k := range probitHigh {
+		t := &probitHigh[k]
+		probitTaylor(float64(k+probitSplit)/probitPerUnit, t.b[:], t.db[:])
+	}
+}
+
+// probitTaylor sets b to the Taylor coefficients of log Phi about c and
+// db[k-1] to k b_k, the derivative's (len(db) = len(b) - 1).
+func probitTaylor(c float64, b, db []float64) {
+	var v, lam float64
+	if c > 0 {
+		Q := 0.5 * math.Erfc(c/math.Sqrt2)
+		v, lam = math.Log1p(-Q), math.Exp(-0.5*c*c)/math.Sqrt(2*math.Pi)/(1-Q)
+	} else {
+		P := 0.5 * math.Erfc(-c/math.Sqrt2)
+		v, lam = math.Log(P), math.Exp(-0.5*c*c)/math.Sqrt(2*math.Pi)/P
+	}
+	l := db // lam's coefficients l_0..: l_(k-1) = k b_k
+	l[0] = lam
+	for j := 0; j+1 < len(l); j++ {
+		s := c * l[j]
+		if j > 0 {
+			s += l[j-1]
+		}
+		for i := 0; i <= j; i++ {
+			s += l[i] * l[j-i]
+		}
+		l[j+1] = -s / float64(j+1)
+	}
+	b[0] = v
+	for j := 1; j < len(b); j++ {
+		b[j] = l[j-1] / float64(j)
+	}
+}
+
+// probitNear returns log Phi(z) and lam = phi(z)/Phi(z) for |z| <=
+// probitFast (the caller checks); with value only, lam is not formed.
+func probitNear(z float64, value bool) (v, lam float64) {
+	k := int(z*probitPerUnit + (float64(probitMid) + 0.5))
+	u := z - float64(k-probitMid)*(1.0/probitPerUnit) // exact
+	if k > probitMid+probitSplit {
+		return probitFar(k-probitMid-probitSplit, u, value)
+	}
+	t := &probitLow[k]
+	u2 := u * u
+	u4 := u2 * u2
+	// Estrin's scheme: pairs of terms, then pairs of pairs, side by side.
+	b := &t.b
+	v = (b[0] + b[1]*u + u2*(b[2]+b[3]*u)) + u4*((b[4]+b[5]*u)+u2*(b[6]+b[7]*u)+u4*b[8])
+	if value {
+		return v, 0
+	}
+	d := &t.db
+	lam = (d[0] + d[1]*u + u2*(d[2]+d[3]*u)) + u4*((d[4]+d[5]*u)+u2*(d[6]+d[7]*u))
+	return v, lam
+}
+
+// probitFar is probitNear from probitHigh's centre k on.
+func probitFar(k int, u float64, value bool) (v, lam float64) {
+	t := &probitHigh[k]
+	for j := probitHighDeg; j >= 0; j-- {
+		v = v*u + t.b[j]
+	}
+	if !value {
+		for j := probitHighDeg - 1; j >= 0; j-- {
+			lam = lam*u + t.db[j]
+		}
+	}
+	return v, lam
+}
