@@ -642,6 +642,9 @@ func (p *problem) blockKernels(c *coefs, lo, rows, order int, expected bool, a *
 		if ok, done := p.logitKernels(c, lo, rows, order, a, s); done {
 			return ok
 		}
+		if p.ker.cmp == Stage || p.ker.cmp == stackedBinary {
+			return p.stageKernels(c, lo, rows, order, a, s)
+		}
 	}
 	var g, h []float64
 	if order >= 1 {
@@ -769,6 +772,53 @@ func (p *problem) cumulativeKernels(c *coefs, lo, rows, order int, a *acc, s *sc
 			hcol(yi-1, yi-1)[i] = wi * md.haa
 			hcol(yi-1, yi)[i] = wi * (md.ra * md.rb)
 		}
+	}
+	return true
+}
+
+// stageKernels is blockKernels for a stage or stacked model under a link
+// other than the logit with observed derivatives: the same values as the
+// general kernel (kernel.tails), written straight into the block's
+// columns, without a dense gradient and Hessian per row. A row's log
+// probability is the sum of the log-tails of the equations
+// kernel.tailRange gives, log(1 - F) below the row's category, log F
+// from it on; each tail's derivatives go to its equation's column and
+// its diagonal second derivative.
+func (p *problem) stageKernels(c *coefs, lo, rows, order int, a *acc, s *scratch) bool {
+	k, es := &p.ker, s.etaStride
+	y := p.d.y[lo : lo+rows]
+	gs, hp, w := p.kernelColumns(lo, rows, order, s)
+	tau, eta := c.tau, s.eta
+	for i, yi := range y {
+		wi := weightOf(w, i)
+		if wi == 0 {
+			continue
+		}
+		m0, m1 := k.tailRange(yi)
+		lp := 0.0
+		for m := m0; m < m1; m++ {
+			L := tau[m] - eta[m*es+i]
+			var t tail
+			if m < yi {
+				t = k.link.upper(L)
+			} else {
+				t = k.link.lower(L)
+			}
+			lp += t.v
+			// As the general kernel forms them: 0 plus the tail's
+			// derivatives.
+			if order >= 1 {
+				gs[m*rows+i] = wi * (0 + t.d1)
+			}
+			if order >= 2 {
+				hp[p.pairAt[m*p.q+m]*rows+i] = wi * (0 + t.d2)
+			}
+		}
+		if math.IsInf(lp, -1) || math.IsNaN(lp) {
+			return false
+		}
+		a.ll += wi * lp
+		a.minLP = min(a.minLP, lp)
 	}
 	return true
 }

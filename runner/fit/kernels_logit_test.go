@@ -9,12 +9,18 @@ import (
 
 // TestBlockKernelsAsGeneral checks the block kernels written straight into
 // the block's columns (cumulativeKernels, cumulativeLogitKernels,
-// binaryKernels, tailKernels, adjacentKernels) against the general kernel (kernel.eval, row by row,
-// weighted as blockKernels weights it): the same log-likelihood, smallest
-// log-probability, first and second derivatives, bit for bit, with
-// weights of 0, fractions and whole numbers, per-equation and parallel
-// slopes.
+// binaryKernels, tailKernels, stageKernels, adjacentKernels) against the
+// general kernel (kernel.eval, row by row, weighted as blockKernels
+// weights it): the same log-likelihood, smallest log-probability, first
+// and second derivatives, bit for bit, with weights of 0, fractions and
+// whole numbers, per-equation and parallel slopes, under every link.
 func TestBlockKernelsAsGeneral(t *testing.T) {
+	for _, link := range []Link{Logit, Probit, Cloglog, Loglog, Cauchy} {
+		testBlockKernelsAsGeneral(t, link)
+	}
+}
+
+func testBlockKernelsAsGeneral(t *testing.T, link Link) {
 	for _, tc := range []struct {
 		name     string
 		c        Comparison
@@ -34,7 +40,7 @@ func TestBlockKernelsAsGeneral(t *testing.T) {
 			for i := range d.Weights {
 				d.Weights[i] = []float64{0, 0.25, 1, 3}[rng.IntN(4)]
 			}
-			m := Model{Comparison: tc.c, Backward: tc.backward, Link: Logit, Effects: []Effect{Parallel, Nonparallel, Parallel}}
+			m := Model{Comparison: tc.c, Backward: tc.backward, Link: link, Effects: []Effect{Parallel, Nonparallel, Parallel}}
 			p, theta := atMarginalCutpoints(t, d, m)
 			if tc.c != Cumulative {
 				for i := range theta[:J-1] {
@@ -44,6 +50,10 @@ func TestBlockKernelsAsGeneral(t *testing.T) {
 			spread := 0.4 // the slopes' spread (cumulative: small, so that the L_m stay in order)
 			if tc.c == Cumulative {
 				spread = 0.02
+				if link != Logit {
+					// the other links' marginal cutpoints lie closer
+					spread = 0.005
+				}
 			}
 			for i := J - 1; i < len(theta); i++ {
 				theta[i] = spread * rng.NormFloat64()
@@ -55,9 +65,9 @@ func TestBlockKernelsAsGeneral(t *testing.T) {
 				p.blockLinear(c, 0, n, order >= 1, s)
 				a := p.newAcc(0)
 				if !p.blockKernels(c, 0, n, order, false, a, s) {
-					t.Fatalf("%s J=%d: kernel failed", tc.name, J)
+					t.Fatalf("%s %s J=%d: kernel failed", link, tc.name, J)
 				}
-				checkAsGeneral(t, fmt.Sprintf("%s J=%d order %d", tc.name, J, order), p, c, s, d, order, a)
+				checkAsGeneral(t, fmt.Sprintf("%s %s J=%d order %d", link, tc.name, J, order), p, c, s, d, order, a)
 			}
 		}
 	}
