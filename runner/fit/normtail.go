@@ -7,9 +7,10 @@ import "math"
 // centres c = k/32, |z| <= probitFast. Package math's erfc branches five
 // ways on its argument and divides, and the tail then took a logarithm,
 // an exponential and a division more: at every row and equation of a
-// kernel that was half of a stage probit kernel's time. Here a tail is
-// two polynomials of degree 7 and 6 with no branch on z's sign and no
-// division.
+// kernel that was about half of a stage probit kernel's time. Here a
+// tail is two polynomials (of degree 8 and 7 up to z = 2, 11 and 10
+// above) with no branch on z's sign, no division, no exponential or
+// logarithm.
 //
 // The coefficients: lam solves lam' = -lam (z + lam), so with z = c + u
 // and lam = sum l_k u^k, (k+1) l_(k+1) = -(c l_k + l_(k-1) + sum_(i<=k)
@@ -20,8 +21,9 @@ import "math"
 // z + 2 lam > 0) and |u| <= 1/64, so an error in l_0 stays within a
 // factor e^(8.5/64) along the interval. log Phi's singularities nearest
 // the real axis (erfc's complex zeros) are 2.8 away from it, so the
-// coefficients shrink at least as 2.8^-k and the eighth term is below
-// (64 2.8)^-8, 1e-18, of the scale. linkfast_test.go
+// coefficients shrink at least as 2.8^-k and the first term left out,
+// the ninth power, is below (64 2.8)^-9, 1e-20, of the scale below 0.
+// linkfast_test.go
 // (TestLinkFastAgreesWithMath, TestProbitTailDense) compares the tails
 // with package math's erfc.
 
