@@ -77,11 +77,15 @@ func (l Link) lower(z float64) tail {
 		t := Cloglog.upper(-z)
 		return tail{t.v, -t.d1, t.d2}
 	case Cauchy:
-		F := cauchyCDF(z)
+		if math.Abs(z) <= cauchyFast {
+			v, lam, dlam := cauchyNear(z, false)
+			return tail{v, lam, dlam}
+		}
+		v, F := cauchyLogCDF(z)
 		f := 1 / (math.Pi * (1 + z*z))
 		r := f / F
 		fp := -2 * z / (1 + z*z) * f
-		return tail{fastLog(F), r, fp/F - r*r}
+		return tail{v, r, fp/F - r*r}
 	}
 	panic("fit: unknown link")
 }
@@ -133,7 +137,12 @@ func (l Link) logTail(z float64, up bool) float64 {
 		if up {
 			z = -z
 		}
-		return fastLog(cauchyCDF(z))
+		if math.Abs(z) <= cauchyFast {
+			v, _, _ := cauchyNear(z, true)
+			return v
+		}
+		v, _ := cauchyLogCDF(z)
+		return v
 	}
 	panic("fit: unknown link")
 }
@@ -431,6 +440,18 @@ func cauchyCDF(z float64) float64 {
 		return math.Atan(-1/z) / math.Pi
 	}
 	return 0.5 + math.Atan(z)/math.Pi
+}
+
+// cauchyLogCDF returns log F(z) and F(z) under the cauchy link, log F
+// as log1p of -(1 - F) from z > 0 on, so that it keeps its digits where
+// F nears 1.
+func cauchyLogCDF(z float64) (float64, float64) {
+	if z > 0 {
+		Fc := math.Atan(1/z) / math.Pi
+		return fastLog1p(-Fc), 1 - Fc
+	}
+	F := cauchyCDF(z)
+	return fastLog(F), F
 }
 
 // logPhi is log Phi(z), accurate far into the lower tail.

@@ -49,10 +49,17 @@ func mathLower(l Link, z float64) tail {
 		t := mathUpper(Cloglog, -z)
 		return tail{t.v, -t.d1, t.d2}
 	case Cauchy:
-		// Only the value's logarithm changed: the derivatives are lower's.
-		t := Cauchy.lower(z)
-		t.v = math.Log(cauchyCDF(z))
-		return t
+		F := cauchyCDF(z)
+		f := 1 / (math.Pi * (1 + z*z))
+		r := f / F
+		fp := -2 * z / (1 + z*z) * f
+		v := math.Log(F)
+		if z > 0 {
+			// log1p of -(1 - F) = -atan(1/z)/pi: log F keeps its
+			// digits where F nears 1 (the fast tail forms it so).
+			v = math.Log1p(-math.Atan(1/z) / math.Pi)
+		}
+		return tail{v, r, fp/F - r*r}
 	}
 	panic("unknown link")
 }
@@ -221,51 +228,64 @@ func TestLinkFastAgreesWithMath(t *testing.T) {
 	t.Logf("largest difference: %.2g of its tolerance, at %s", worst, worstAt)
 }
 
-// TestProbitTailDense checks the probit's tables (probitNear: log Phi and
-// phi/Phi by Taylor polynomials about the centres k/32) against package
-// math's erfc (mathLower) densely: 40001 points over [-8.5, 8.5], the
-// ends of every interval between centres (c +- 1/64) and both sides of
-// the switch to the longer polynomials at 2, and the tails beyond 8.5
-// where the erfc paths take over. Tolerances as in
-// TestLinkFastAgreesWithMath: 1e-14 times the value's size and its
-// condition number 1 + z^2 (z phi/Q ~ z^2 where log Phi is about -Q, and
-// the reference's own erfc(z/sqrt2) carries z's rounding times z^2), 2e-14
-// for the second derivative -lam (z + lam), which cancels in the lower
-// tail. The largest relative differences are logged in units of 1e-16
-// (1 + z^2).
-func TestProbitTailDense(t *testing.T) {
-	var zs []float64
-	for i := -20000; i <= 20000; i++ {
-		zs = append(zs, float64(i)*probitFast/20000)
-	}
-	for k := -probitMid; k <= probitMid; k++ {
-		c := float64(k) / probitPerUnit
-		zs = append(zs, c-1.0/64, math.Nextafter(c-1.0/64, 0), c+1.0/64, math.Nextafter(c+1.0/64, 0))
-	}
-	zs = append(zs, 2, math.Nextafter(2, 3), 2+1.0/64, math.Nextafter(2+1.0/64, 3), 8.5, math.Nextafter(8.5, 9), 9, 20, 29.9, -8.5, math.Nextafter(-8.5, -9), -9, -29.9, -30.1)
-	worst := [3]float64{}
-	for _, z := range zs {
-		got, want := Probit.lower(z), mathLower(Probit, z)
-		kz := 1 + z*z
-		for i, c := range []struct {
-			what           string
-			got, want, tol float64
-		}{
-			{"log Phi", got.v, want.v, 1e-14},
-			{"phi/Phi", got.d1, want.d1, 1e-14},
-			{"second derivative", got.d2, want.d2, 2e-14},
-		} {
-			e := math.Abs(c.got - c.want)
-			if !(e <= c.tol*kz*math.Abs(c.want) || e <= 1e-300) {
-				t.Errorf("probit %s(%.17g): %.17g, with package math %.17g", c.what, z, c.got, c.want)
+// TestTailTablesDense checks the probit's and cauchy's tables
+// (probitNear, cauchyNear: log F and f/F by Taylor polynomials about the
+// centres k/32; cauchy also the derivative of f/F) against package math's
+// erfc and atan (mathLower) densely: 40001 points over the table's range
+// (8.5 probit, 8 cauchy), the ends of every interval between centres (c
+// +- 1/64), both sides of the probit's switch to longer polynomials at
+// 2, and beyond the tables where package math takes over. Tolerances as
+// in TestLinkFastAgreesWithMath: 1e-14 times the value's size and its
+// condition number 1 + z^2 (z f/(1 - F) is about z^2 for the probit
+// where log F is about -(1 - F), and the reference's erfc(z/sqrt2)
+// carries z's rounding times z^2), 2e-14 for the second derivative q r -
+// r^2 (q = f'/f, r = f/F) times the size of its terms, |q r| + r^2 (the
+// probit's -lam (z + lam) cancels in the lower tail, the cauchy's where
+// it changes sign). The largest relative differences are logged in units
+// of 1e-16 (1 + z^2) times those scales.
+func TestTailTablesDense(t *testing.T) {
+	for _, tc := range []struct {
+		l    Link
+		zmax float64
+	}{{Probit, probitFast}, {Cauchy, cauchyFast}} {
+		var zs []float64
+		for i := -20000; i <= 20000; i++ {
+			zs = append(zs, float64(i)*tc.zmax/20000)
+		}
+		for k := -int(tc.zmax * probitPerUnit); k <= int(tc.zmax*probitPerUnit); k++ {
+			c := float64(k) / probitPerUnit
+			zs = append(zs, c-1.0/64, math.Nextafter(c-1.0/64, 0), c+1.0/64, math.Nextafter(c+1.0/64, 0))
+		}
+		zs = append(zs, 2, math.Nextafter(2, 3), 2+1.0/64, math.Nextafter(2+1.0/64, 3), 9, 20, 29.9, 1e3, -9, -29.9, -30.1, -1e3)
+		for _, z := range []float64{tc.zmax, math.Nextafter(tc.zmax, 100)} {
+			zs = append(zs, z, -z)
+		}
+		worst := [3]float64{}
+		for _, z := range zs {
+			got, want := tc.l.lower(z), mathLower(tc.l, z)
+			kz := 1 + z*z
+			_, q := mathLogDensity(tc.l, z)
+			for i, c := range []struct {
+				what                  string
+				got, want, tol, scale float64
+			}{
+				{"log F", got.v, want.v, 1e-14, math.Abs(want.v)},
+				{"f/F", got.d1, want.d1, 1e-14, math.Abs(want.d1)},
+				// q r - r^2 (q = f'/f, r = f/F): the size of its terms
+				{"second derivative", got.d2, want.d2, 2e-14, math.Abs(q*want.d1) + want.d1*want.d1},
+			} {
+				e := math.Abs(c.got - c.want)
+				if !(e <= c.tol*kz*c.scale || e <= 1e-300) {
+					t.Errorf("%s %s(%.17g): %.17g, with package math %.17g", tc.l, c.what, z, c.got, c.want)
+				}
+				if c.scale != 0 {
+					worst[i] = max(worst[i], e/(1e-16*kz*c.scale))
+				}
 			}
-			if c.want != 0 {
-				worst[i] = max(worst[i], e/(1e-16*kz*math.Abs(c.want)))
+			if v := tc.l.logTail(z, false); v != got.v {
+				t.Errorf("%s logTail(%g) = %v, lower's value %v", tc.l, z, v, got.v)
 			}
 		}
-		if v := Probit.logTail(z, false); v != got.v {
-			t.Errorf("probit logTail(%g) = %v, lower's value %v", z, v, got.v)
-		}
+		t.Logf("%s: largest differences in 1e-16 (1 + z^2) relative: log F %.3g, f/F %.3g, second derivative %.3g", tc.l, worst[0], worst[1], worst[2])
 	}
-	t.Logf("largest differences in 1e-16 (1 + z^2) relative: log Phi %.3g, phi/Phi %.3g, second derivative %.3g", worst[0], worst[1], worst[2])
 }

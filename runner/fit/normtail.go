@@ -132,3 +132,107 @@ func probitFar(k int, u float64, value bool) (v, lam float64) {
 	}
 	return v, lam
 }
+
+// The cauchy link's tails likewise: log F(z) and lam = f(z)/F(z) by
+// Taylor polynomials about centres k/32, |z| <= cauchyFast, instead of
+// package math's atan (which branches three ways and divides), a
+// logarithm and two divisions. f = 1/(pi (1 + z^2)) about c has
+// coefficients a f_0 = 1/pi, a f_1 + 2 c f_0 = 0, a f_k + 2 c f_(k-1) +
+// f_(k-2) = 0 (a = 1 + c^2; the recurrence's roots have one modulus,
+// 1/sqrt a, so neither solution swamps the other), F's are F(c) and
+// f_(k-1)/k, lam = f/F's lam_k = (f_k - sum_(i=1..k) F_i lam_(k-i)) /
+// F(c), and log F's log F(c) and lam_(k-1)/k. F(c) from package math's
+// atan (log F(c) as log1p of -atan(1/c)/pi from c > 0 on). log F's
+// singularities are +-i (atan's branch points; F has no complex zero),
+// at least 1 from any real centre: with |u| <= 1/64 the first term left
+// out, the 11th power, is below 64^-11, 1e-20, of the coefficients'
+// scale; above 0 log F is about -(1 - F) = -1/(pi z), and the terms
+// relative to it fall as (u/z)^k. lam's second derivative, the tail's
+// curvature, is the derivative of lam's polynomial (no cancellation).
+
+const (
+	cauchyFast = 8.0
+	cauchyMid  = int(cauchyFast * probitPerUnit)
+	cauchyDeg  = 10
+)
+
+// cauchyTable holds, for each centre c = (k - 256)/32, the Taylor
+// coefficients of log F about c (b), of lam (l) and of lam's derivative
+// (dl).
+var cauchyTable [2*cauchyMid + 1]struct {
+	b  [cauchyDeg + 1]float64
+	l  [cauchyDeg]float64
+	dl [cauchyDeg - 1]float64
+}
+
+func init() {
+	for k := range cauchyTable {
+		c := float64(k-cauchyMid) / probitPerUnit
+		t := &cauchyTable[k]
+		var F, v float64
+		if c > 0 {
+			Fc := math.Atan(1/c) / math.Pi
+			F, v = 1-Fc, math.Log1p(-Fc)
+		} else {
+			F = math.Atan(-1/c) / math.Pi
+			if c == 0 {
+				F = 0.5
+			}
+			v = math.Log(F)
+		}
+		a := 1 + c*c
+		var f, Fk [cauchyDeg]float64
+		for j := range f {
+			s := 0.0
+			if j == 0 {
+				s = 1 / math.Pi
+			}
+			if j >= 1 {
+				s -= 2 * c * f[j-1]
+			}
+			if j >= 2 {
+				s -= f[j-2]
+			}
+			f[j] = s / a
+			if j >= 1 {
+				Fk[j] = f[j-1] / float64(j)
+			}
+		}
+		for j := range t.l {
+			s := f[j]
+			for i := 1; i <= j; i++ {
+				s -= Fk[i] * t.l[j-i]
+			}
+			t.l[j] = s / F
+		}
+		t.b[0] = v
+		for j := 1; j <= cauchyDeg; j++ {
+			t.b[j] = t.l[j-1] / float64(j)
+		}
+		for j := range t.dl {
+			t.dl[j] = float64(j+1) * t.l[j+1]
+		}
+	}
+}
+
+// cauchyNear returns log F(z), lam = f(z)/F(z) and lam's derivative
+// under the cauchy link for |z| <= cauchyFast (the caller checks); with
+// value only, the derivatives are not formed.
+func cauchyNear(z float64, value bool) (v, lam, dlam float64) {
+	k := int(z*probitPerUnit + (float64(cauchyMid) + 0.5))
+	u := z - float64(k-cauchyMid)*(1.0/probitPerUnit) // exact
+	t := &cauchyTable[k]
+	u2 := u * u
+	u4 := u2 * u2
+	u8 := u4 * u4
+	b := &t.b
+	v = (b[0] + b[1]*u + u2*(b[2]+b[3]*u)) + u4*((b[4]+b[5]*u)+u2*(b[6]+b[7]*u)) + u8*(b[8]+b[9]*u+u2*b[10])
+	if value {
+		return v, 0, 0
+	}
+	l := &t.l
+	lam = (l[0] + l[1]*u + u2*(l[2]+l[3]*u)) + u4*((l[4]+l[5]*u)+u2*(l[6]+l[7]*u)) + u8*(l[8]+l[9]*u)
+	d := &t.dl
+	dlam = (d[0] + d[1]*u + u2*(d[2]+d[3]*u)) + u4*((d[4]+d[5]*u)+u2*(d[6]+d[7]*u)) + u8*d[8]
+	return v, lam, dlam
+}
