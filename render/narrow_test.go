@@ -7,8 +7,9 @@ import (
 	"testing"
 )
 
-// chartOption is what the tests below read of a chart's option.
-type chartOption struct {
+// chartLayout is what a chart's option and its media options set of its
+// title and plot.
+type chartLayout struct {
 	Title struct {
 		Text    string `json:"text"`
 		Subtext string `json:"subtext"`
@@ -17,6 +18,11 @@ type chartOption struct {
 		Top    string `json:"top"`
 		Bottom string `json:"bottom"`
 	} `json:"grid"`
+}
+
+// chartOption is what the tests below read of a chart's option.
+type chartOption struct {
+	chartLayout
 	Legend struct {
 		Data []json.RawMessage `json:"data"`
 	} `json:"legend"`
@@ -28,16 +34,7 @@ type chartOption struct {
 		Query *struct {
 			MaxWidth int `json:"maxWidth"`
 		} `json:"query"`
-		Option struct {
-			Title struct {
-				Text    string `json:"text"`
-				Subtext string `json:"subtext"`
-			} `json:"title"`
-			Grid []struct {
-				Top    string `json:"top"`
-				Bottom string `json:"bottom"`
-			} `json:"grid"`
-		} `json:"option"`
+		Option chartLayout `json:"option"`
 	} `json:"media"`
 }
 

@@ -51,21 +51,19 @@ var (
 	loadsFile  = regexp.MustCompile(`(?i)<(script|link|img|iframe|object|embed)\b[^>]*\b(src|href|data)=`)
 )
 
-// TestReportRendersInBrowser runs the example plan and opens report.html
-// in headless Chromium without a network: every chart must be drawn (its
-// element marked data-rendered="1" and holding a canvas) and the page
-// must report no script error. Every chart has its export buttons (PNG
-// and SVG), the predicted probabilities have interval bands, and every
-// figure report.md shows exists beside it.
-func TestReportRendersInBrowser(t *testing.T) {
+// browserExample runs the example plan into a temporary folder for a
+// test in the browser: the folder, the output folder and report.html's
+// absolute path. The test is skipped in -short mode or without Chromium.
+func browserExample(t *testing.T) (dir, out, page string) {
+	t.Helper()
 	if testing.Short() {
 		t.Skip("browser test skipped in -short mode")
 	}
 	if _, err := os.Stat(chromiumPath); err != nil {
 		t.Skipf("browser test skipped: %s is not installed (Debian: apt-get install -y chromium)", chromiumPath)
 	}
-	dir := t.TempDir()
-	out := filepath.Join(dir, "out")
+	dir = t.TempDir()
+	out = filepath.Join(dir, "out")
 	stdout, stderr, code := runCLI("run", filepath.Join("..", "..", "plans", "example.yaml"), "--out", out, "--quiet")
 	if code != 0 {
 		t.Fatalf("ordplan run: exit %d\n%s%s", code, stdout, stderr)
@@ -74,6 +72,17 @@ func TestReportRendersInBrowser(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
+	return dir, out, page
+}
+
+// TestReportRendersInBrowser runs the example plan and opens report.html
+// in headless Chromium without a network: every chart must be drawn (its
+// element marked data-rendered="1" and holding a canvas) and the page
+// must report no script error. Every chart has its export buttons (PNG
+// and SVG), the predicted probabilities have interval bands, and every
+// figure report.md shows exists beside it.
+func TestReportRendersInBrowser(t *testing.T) {
+	dir, out, page := browserExample(t)
 	src, err := os.ReadFile(page)
 	if err != nil {
 		t.Fatal(err)
@@ -200,23 +209,9 @@ func TestReportRendersInBrowser(t *testing.T) {
 // a table wider than the screen is marked as scrolling sideways (the note
 // above it and the faded edge), while a narrow table is not; at 1400
 // pixels no chart changes height and no table of the models is marked.
+// The calibration chart's tooltip names each series whole.
 func TestReportAtPhoneWidth(t *testing.T) {
-	if testing.Short() {
-		t.Skip("browser test skipped in -short mode")
-	}
-	if _, err := os.Stat(chromiumPath); err != nil {
-		t.Skipf("browser test skipped: %s is not installed (Debian: apt-get install -y chromium)", chromiumPath)
-	}
-	dir := t.TempDir()
-	out := filepath.Join(dir, "out")
-	stdout, stderr, code := runCLI("run", filepath.Join("..", "..", "plans", "example.yaml"), "--out", out, "--quiet")
-	if code != 0 {
-		t.Fatalf("ordplan run: exit %d\n%s%s", code, stdout, stderr)
-	}
-	page, err := filepath.Abs(filepath.Join(out, "report.html"))
-	if err != nil {
-		t.Fatal(err)
-	}
+	dir, _, page := browserExample(t)
 	chartTag := regexp.MustCompile(`<div class="chart" id="(chart-\d+)" style="height: ?(\d+)px[^"]*"( data-narrow="(\d+)")?[^>]*>`)
 	wraps := regexp.MustCompile(`<div class="table-wrap( [^"]*)?">`)
 	for _, width := range []int{400, 1400} {
