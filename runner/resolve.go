@@ -435,6 +435,7 @@ func (a *Analysis) Load(r Reading) (*Loaded, error) {
 	}
 	dz, d, err := buildDesign(r.Design, ds)
 	if err != nil {
+		err = levelsAfterLoss(err, ds)
 		if !a.Plan {
 			return nil, fmt.Errorf("%s: %v", a.DataFile, err)
 		}
@@ -444,6 +445,22 @@ func (a *Analysis) Load(r Reading) (*Loaded, error) {
 		return nil, err
 	}
 	return &Loaded{Data: ds, Design: dz, FitData: d}, nil
+}
+
+// levelsAfterLoss is err, a refusal of a categorical column's levels
+// against the rows used (a declared level or the reference that no row
+// has, one level alone: design.Error.Levels), ending, when more rows were
+// dropped than kept, with why so few remain (Dataset.FewRowsSentence), as
+// the other refusals counting the rows used do; any other err as it is.
+func levelsAfterLoss(err error, ds *data.Dataset) error {
+	var de *design.Error
+	few := ds.FewRowsSentence()
+	if few == "" || !errors.As(err, &de) || !de.Levels {
+		return err
+	}
+	e := *de
+	e.Msg += ". " + few
+	return &e
 }
 
 // checkPanels refuses a numeric column of report.panels_by that holds a
@@ -759,11 +776,19 @@ func (r Reading) termPlace(err error) string {
 }
 
 // keyOf names the plan key behind a data error on a categorical column or
-// a subset column.
+// a subset column; for a refusal that says why so few rows remain
+// (data.Error.Dropped), the keys behind the rows dropped (lossKeys), the
+// cause, rather than the column's.
 func (r Reading) keyOf(err error) string {
 	var de *data.Error
 	if !errors.As(err, &de) {
 		return ""
+	}
+	if keys := r.lossKeys(de.Dropped); len(keys) > 0 {
+		if len(keys) == 1 {
+			return ", plan key " + keys[0]
+		}
+		return ", plan keys " + words.AndList(keys)
 	}
 	if de.Key != "" {
 		return ", plan key " + de.Key
@@ -775,6 +800,39 @@ func (r Reading) keyOf(err error) string {
 		return ", plan key " + k
 	}
 	return ""
+}
+
+// lossKeys are the plan keys behind rows dropped (dc): the subset's
+// conditions on the columns that dropped rows, data.missing for rows
+// dropped for a missing value, data.weights for rows of weight 0; in that
+// order, each once.
+func (r Reading) lossKeys(dc []data.DropCount) []string {
+	var keys []string
+	add := func(k string) {
+		if k != "" && !slices.Contains(keys, k) {
+			keys = append(keys, k)
+		}
+	}
+	for _, c := range dc {
+		if c.Rows > 0 && c.Subset {
+			for _, k := range r.Options.Keep {
+				if k.Column == c.Column {
+					add(k.Key)
+				}
+			}
+		}
+	}
+	for _, c := range dc {
+		if c.Rows > 0 && !c.Subset && !c.ZeroWeight(r.Options.Weights) {
+			add("data.missing")
+		}
+	}
+	for _, c := range dc {
+		if c.Rows > 0 && c.ZeroWeight(r.Options.Weights) {
+			add("data.weights")
+		}
+	}
+	return keys
 }
 
 // Partitioned checks that the analysis can fit model m over partitions

@@ -163,7 +163,39 @@ func termItems(dir string) []badInput {
 			want: []string{`cat.csv: column "x": the subset keeps no rows: all 60 data rows fail its conditions (outside the subset x > 1000: 60)`, `plan key subset[0]`}},
 		{id: "T6", name: "declared level never observed", args: []string{"run"}, setup: writeTermsData,
 			plan: termsEdit("[north, east, south]", "[north, east, south, west]"), code: 1,
-			want: []string{`T6.yaml:5:18: categorical.site.levels: column "site": level "west" is declared but occurs in no row used; remove it from the levels, or have its column dropped (in a plan unobserved: drop, in ordplan fit |drop)`}},
+			want: []string{`T6.yaml:5:18: categorical.site.levels: column "site": level "west" is declared but occurs in no row used; remove it from the levels, or have its column dropped (in a plan unobserved: drop, in ordplan fit |drop)`},
+			check: func(t *testing.T, dir, out, errs string) {
+				// z observed in two rows of six, none of site south: more
+				// rows dropped than kept, and the refusal of the level they
+				// lost says why so few remain, in a plan (check, run) as in
+				// ordplan fit.
+				src, err := os.ReadFile(filepath.Join(dir, "cat.csv"))
+				if err != nil {
+					t.Fatal(err)
+				}
+				var b strings.Builder
+				for i, l := range strings.Split(strings.TrimSpace(string(src)), "\n") {
+					switch {
+					case i == 0:
+						l += ",z"
+					case i%6 == 1 || i%6 == 2:
+						l += fmt.Sprintf(",%d", i%4)
+					default:
+						l += ","
+					}
+					b.WriteString(l + "\n")
+				}
+				os.WriteFile(filepath.Join(dir, "catloss.csv"), []byte(b.String()), 0o644)
+				pl := filepath.Join(dir, "T6loss.yaml")
+				os.WriteFile(pl, []byte(termsEdit("file: cat.csv", "file: catloss.csv", "[site, x]", "[site, x, z]")), 0o644)
+				want := `level "south" is declared but occurs in no row used; remove it from the levels, or have its column dropped (in a plan unobserved: drop, in ordplan fit |drop). Only 20 of the 60 rows read are used: 40 of 60 rows dropped for missing values (z: 40). Predictor column "z" is observed in 20 of the 60 rows`
+				for _, args := range [][]string{{"check", pl}, {"run", pl, "--out", filepath.Join(dir, "T6loss-out"), "--quiet"},
+					fitArgs(filepath.Join(dir, "catloss.csv"), "--predictors", "site|levels=north/east/south,x,z")} {
+					if _, e, code := runCLI(args...); code != 1 || !strings.Contains(e, want) {
+						t.Errorf("%s after heavy row loss: exit %d:\n%s\nwant exit 1 and %q", args[0], code, e, want)
+					}
+				}
+			}},
 		{id: "T7", name: "declared level never observed, dropped as the plan says", args: []string{"run"}, setup: writeTermsData,
 			plan: termsEdit("[north, east, south]}", "[north, east, south, west], unobserved: drop}"), code: 0,
 			check: func(t *testing.T, dir, out, errs string) {

@@ -1398,7 +1398,20 @@ func catalogue(dir string) (items []badInput) {
 					}
 					return ""
 				})
-				rowLossRefused(t, dir, "D8loss.csv", "a,z", fmt.Sprintf(`column "y": only one category ("2") among the %d kept rows; at least two are needed. Only %d of the 120 rows read are used: %d of 120 rows dropped for missing values (z: %d). Predictor column "z" is observed in %d of the 120 rows`, kept, kept, 120-kept, 120-kept, kept))
+				want := fmt.Sprintf(`column "y": only one category ("2") among the %d kept rows; at least two are needed. Only %d of the 120 rows read are used: %d of 120 rows dropped for missing values (z: %d). Predictor column "z" is observed in %d of the 120 rows`, kept, kept, 120-kept, 120-kept, kept)
+				rowLossRefused(t, dir, "D8loss.csv", "a,z", want)
+				// In a plan the refusal names the plan key behind the rows
+				// dropped (data.missing), not the outcome's categories,
+				// which are not at fault.
+				pl := filepath.Join(dir, "D8loss.yaml")
+				os.WriteFile(pl, []byte(edit("file: d.csv", "file: D8loss.csv", "[a, b]", "[a, z]")), 0o644)
+				for _, args := range [][]string{{"check", pl}, {"run", pl, "--out", filepath.Join(dir, "D8loss-out"), "--quiet"}} {
+					cmd := args[0]
+					_, e, code := runCLI(args...)
+					if code != 1 || !strings.Contains(e, want) || !strings.HasSuffix(strings.TrimSpace(e), `(plan `+pl+`, outcome "y", plan key data.missing)`) {
+						t.Errorf("%s after heavy row loss: exit %d:\n%s\nwant exit 1, %q and the plan key data.missing", cmd, code, e, want)
+					}
+				}
 			}},
 		{id: "D9", name: "declared category never observed", args: []string{"run"},
 			plan: edit("column: y", "column: y\n    categories: [\"1\", \"2\", \"3\", \"4\"]"), code: 1,

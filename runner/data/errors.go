@@ -39,6 +39,10 @@ type Error struct {
 	Msg    string // what is wrong
 	Err    error  // underlying error, if any (for errors.Is / errors.As)
 	Key    string // the plan key behind the problem, when the reader knows it (not printed here)
+	// Dropped, when the message ends with why so few rows remain
+	// (Dataset.FewRowsSentence), are the rows dropped: the cause, whose
+	// plan keys a plan names rather than the column's.
+	Dropped []DropCount
 }
 
 func (e *Error) Error() string {

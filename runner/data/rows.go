@@ -1163,6 +1163,7 @@ func (r *reader) twoCategories(d *Dataset) error {
 		e := r.fail(0, d.Outcome, "only one category (%s) among the %d kept rows; at least two are needed", quoteCell(last), d.N)
 		if few := d.FewRowsSentence(); few != "" {
 			e.Msg += ". " + few
+			e.Dropped = d.Dropped
 		}
 		return e
 	}
