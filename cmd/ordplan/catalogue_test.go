@@ -359,7 +359,7 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		"emptypart.csv": []byte(strings.SplitAfter(csv, "\n")[0]),
 		"notbook.xlsx":  zipOf(t, "data.csv", csv), "cut.parquet": datesParquet(t)[:300], "binary.csv": []byte("y,a,b\n1,\x00\x01\x02,1\n"),
 		"cut.xlsx": toWorkbook(t, []byte(csv))[:2000],
-		"new.csv":  []byte("a,b\n0.5,1\n-1,0\n"), "short.key": []byte("short\n"), "queue.key": []byte("a shared secret of the catalogue's queue\n"), "precious.txt": []byte("keep me\n"),
+		"new.csv":  []byte("a,b\n0.5,1\n-1,0\n"), "short.key": []byte("short\n"), "one.login": []byte("ordplan hunter2-pw\n"), "empty.token": []byte("\n"), "queue.token": []byte("tok-hunter2\n"), "queue.key": []byte("a shared secret of the catalogue's queue\n"), "precious.txt": []byte("keep me\n"),
 	}
 	os.MkdirAll(filepath.Join(dir, "parts"), 0o755)
 	for name, b := range files {
@@ -2647,6 +2647,29 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{"data cache d.csv: mkdir d.csv: not a directory (give --cache a folder this worker can write)"}},
 		{id: "Q3", name: "secret file too short", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-secret-file", d("short.key")}, code: 1,
 			want: []string{"short.key: 5 bytes; a shared secret needs at least 16"}},
+		{id: "Q15", name: "two ways to authenticate to the queue server", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-login", d("one.login"), "--queue-token", d("queue.token")}, code: 1,
+			want: []string{"queue nats://127.0.0.1:1: --queue-login and --queue-token each say how to authenticate to the server: give one of them"},
+			check: func(t *testing.T, dir, out, errs string) {
+				_, e, code := runCLI("worker", "--queue", "nats://tok-hunter2@127.0.0.1:1", "--queue-token", filepath.Join(dir, "queue.token"))
+				if code != 1 || !strings.Contains(e, "queue nats://xxxxx@127.0.0.1:1: the server URL carries a user name or token and --queue-token gives credentials too: give one of them") || strings.Contains(e, "hunter2") {
+					t.Errorf("a token in the URL and a token file: exit %d: %s", code, e)
+				}
+			}},
+		{id: "Q16", name: "a login or token file that does not hold what it should", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-login", d("one.login")}, code: 1,
+			want: []string{"one.login: it holds 1 line; it should hold two: the user name on the first, the password on the second"},
+			check: func(t *testing.T, dir, out, errs string) {
+				if strings.Contains(errs, "hunter2") {
+					t.Errorf("the file's content is printed: %s", errs)
+				}
+				_, e, code := runCLI("worker", "--queue", "nats://127.0.0.1:1", "--queue-token", filepath.Join(dir, "empty.token"))
+				if code != 1 || !strings.Contains(e, "empty.token: it is empty; it should hold the token the server expects, on one line") {
+					t.Errorf("an empty token file: exit %d: %s", code, e)
+				}
+				_, e, code = runCLI("worker", "--queue", "nats://127.0.0.1:1", "--queue-login", filepath.Join(dir, "no.login"))
+				if code != 1 || !strings.Contains(e, "login file (--queue-login) "+filepath.Join(dir, "no.login")+": no such file or directory") {
+					t.Errorf("a missing login file: exit %d: %s", code, e)
+				}
+			}},
 		{id: "Q4", name: "TLS certificate without its key", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-cert", d("d.csv")}, code: 1,
 			want: []string{"a client certificate needs its key and a key its certificate (--queue-cert and --queue-key)"}},
 	}
@@ -2893,6 +2916,7 @@ var testedElsewhere = map[string]struct{ file, name string }{
 	"Q11": {"../../runner/queue/hostile_test.go", "TestJobDeadlineNamesThePart"},
 	"Q13": {"../../runner/queue/faults_test.go", "TestWorkerFaultStopsRunOrIsRetried"},
 	"Q14": {"../../runner/queue/reconnect_test.go", "TestConnectionLostAndFoundIsLogged"},
+	"Q17": {"../../runner/queue/secure_test.go", "TestLoginAndTokenFiles"},
 }
 
 // Every item of the catalogue is in docs/bad-inputs.md, and every item

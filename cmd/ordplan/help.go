@@ -73,6 +73,7 @@ var commands = []command{
 var queueExamples = map[string]string{
 	"queue": "--queue nats://10.0.0.5:4222", "queue-ca": "--queue-ca ca.pem", "queue-cert": "--queue-cert client.pem",
 	"queue-key": "--queue-key client-key.pem", "queue-creds": "--queue-creds user.creds", "queue-nkey": "--queue-nkey user.nk",
+	"queue-login": "--queue-login queue.login", "queue-token": "--queue-token queue.token",
 	"queue-secret-file": "--queue-secret-file secret.txt", "job-deadline": "--job-deadline 30m",
 }
 

@@ -19,8 +19,8 @@ import (
 // reach the queue: the server, TLS, credentials and the shared secret.
 // Each may also be given by an environment variable.
 type queueFlags struct {
-	url, ca, cert, key, creds, nkey, secretFile *string
-	deadline                                    *time.Duration
+	url, ca, cert, key, creds, nkey, login, token, secretFile *string
+	deadline                                                  *time.Duration
 }
 
 func addQueueFlags(fs *flag.FlagSet, urlHelp string, coordinator bool) *queueFlags {
@@ -32,6 +32,8 @@ func addQueueFlags(fs *flag.FlagSet, urlHelp string, coordinator bool) *queueFla
 		key:        fs.String("queue-key", env(queue.EnvKey), "PEM private key of --queue-cert (env "+queue.EnvKey+")"),
 		creds:      fs.String("queue-creds", env(queue.EnvCreds), "NATS credentials file (env "+queue.EnvCreds+")"),
 		nkey:       fs.String("queue-nkey", env(queue.EnvNkey), "file with an nkey seed (env "+queue.EnvNkey+")"),
+		login:      fs.String("queue-login", env(queue.EnvLogin), "file with the user name (first line) and password (second line) the server expects (env "+queue.EnvLogin+")"),
+		token:      fs.String("queue-token", env(queue.EnvToken), "file with the token the server expects, on one line (env "+queue.EnvToken+")"),
 		secretFile: fs.String("queue-secret-file", env(queue.EnvSecretFile), "file with the secret shared by the coordinator and the workers: jobs and results carry an HMAC made with it (env "+queue.EnvSecretFile+"; required with --queue)"),
 	}
 	if coordinator {
@@ -46,7 +48,7 @@ var errNoSecret = errors.New("--queue needs the shared secret: give --queue-secr
 
 // config builds the connection settings; a missing secret is errNoSecret.
 func (q *queueFlags) config(name string) (queue.Config, error) {
-	cfg := queue.Config{URL: *q.url, Name: name, CAFile: *q.ca, CertFile: *q.cert, KeyFile: *q.key, CredsFile: *q.creds, NkeyFile: *q.nkey}
+	cfg := queue.Config{URL: *q.url, Name: name, CAFile: *q.ca, CertFile: *q.cert, KeyFile: *q.key, CredsFile: *q.creds, NkeyFile: *q.nkey, LoginFile: *q.login, TokenFile: *q.token}
 	if *q.secretFile == "" {
 		return cfg, errNoSecret
 	}

@@ -14,7 +14,7 @@ import (
 	"ordplan/runner/queue"
 )
 
-const workerUsage = "usage: ordplan worker --queue nats://HOST:PORT --queue-secret-file FILE [--queue-ca FILE] [--queue-cert FILE --queue-key FILE] [--queue-creds FILE | --queue-nkey FILE] [--cache DIR] [--jobs N] [--ack-wait 30s] [--name NAME] [--quiet]"
+const workerUsage = "usage: ordplan worker --queue nats://HOST:PORT --queue-secret-file FILE [--queue-ca FILE] [--queue-cert FILE --queue-key FILE] [--queue-creds FILE | --queue-nkey FILE | --queue-login FILE | --queue-token FILE] [--cache DIR] [--jobs N] [--ack-wait 30s] [--name NAME] [--quiet]"
 
 // cmdWorker pulls fits from the queue until interrupted.
 func cmdWorker(args []string, stdout, stderr io.Writer) int {

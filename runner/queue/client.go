@@ -2,9 +2,9 @@ package queue
 
 import (
 	"context"
-	"errors"
 	"fmt"
 	"io"
+	"strings"
 	"time"
 
 	"github.com/nats-io/nats.go"
@@ -55,16 +55,34 @@ func Connect(ctx context.Context, cfg Config) (*Client, error) {
 	if cfg.NkeyFile != "" {
 		o, err := nats.NkeyOptionFromSeed(cfg.NkeyFile)
 		if err != nil {
-			return nil, fmt.Errorf("queue %s: nkey file %s: %s", shown, cfg.NkeyFile, scrub(err.Error(), cfg.URL))
+			return nil, fmt.Errorf("queue %s: nkey file (--queue-nkey) %s: %s", shown, cfg.NkeyFile, scrub(err.Error(), cfg.URL))
 		}
 		opts = append(opts, o)
 	}
-	nc, err := nats.Connect(cfg.URL, opts...)
-	if errors.Is(err, nats.ErrNoServers) {
-		return nil, fmt.Errorf("queue %s: cannot reach the queue server (%s): check that it runs at that address and that --queue names it", shown, scrub(err.Error(), cfg.URL))
+	var hidden []string // secrets read from files, never shown
+	if cfg.LoginFile != "" {
+		user, password, err := readLogin(cfg.LoginFile)
+		if err != nil {
+			return nil, fmt.Errorf("queue %s: %v", shown, err)
+		}
+		opts = append(opts, nats.UserInfo(user, password))
+		hidden = append(hidden, password)
 	}
+	if cfg.TokenFile != "" {
+		tok, err := readToken(cfg.TokenFile)
+		if err != nil {
+			return nil, fmt.Errorf("queue %s: %v", shown, err)
+		}
+		opts = append(opts, nats.Token(tok))
+		hidden = append(hidden, tok)
+	}
+	nc, err := nats.Connect(cfg.URL, opts...)
 	if err != nil {
-		return nil, fmt.Errorf("queue %s: %s", shown, scrub(err.Error(), cfg.URL))
+		msg := scrub(err.Error(), cfg.URL)
+		for _, h := range hidden {
+			msg = strings.ReplaceAll(msg, h, "xxxxx")
+		}
+		return nil, fmt.Errorf("queue %s: %s", shown, cfg.explainRefusal(err, msg))
 	}
 	c, err := NewClient(ctx, nc, cfg.Secret)
 	if err != nil {

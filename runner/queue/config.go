@@ -1,12 +1,18 @@
 package queue
 
 import (
+	"crypto/tls"
+	"crypto/x509"
 	"errors"
 	"fmt"
 	"io"
 	"net/url"
 	"os"
 	"strings"
+
+	"github.com/nats-io/nats.go"
+
+	"ordplan/internal/words"
 )
 
 // Config says how to reach the JetStream server and how to authenticate
@@ -20,6 +26,8 @@ type Config struct {
 	KeyFile   string // PEM private key of CertFile
 	CredsFile string // NATS credentials file (user JWT and nkey seed)
 	NkeyFile  string // file holding an nkey seed (SU...)
+	LoginFile string // file holding a user name (first line) and its password (second line)
+	TokenFile string // file holding an authentication token
 	// Secret is the key shared by the coordinator and every worker: jobs
 	// and replies carry an HMAC-SHA256 made with it, and anything without
 	// a valid one is discarded. See LoadSecret.
@@ -39,6 +47,8 @@ const (
 	EnvKey        = "ORDPLAN_QUEUE_KEY"
 	EnvCreds      = "ORDPLAN_QUEUE_CREDS"
 	EnvNkey       = "ORDPLAN_QUEUE_NKEY"
+	EnvLogin      = "ORDPLAN_QUEUE_LOGIN"
+	EnvToken      = "ORDPLAN_QUEUE_TOKEN"
 	EnvSecretFile = "ORDPLAN_QUEUE_SECRET_FILE"
 )
 
@@ -87,20 +97,109 @@ func (cfg Config) check() error {
 	if (cfg.CertFile == "") != (cfg.KeyFile == "") {
 		return errors.New("a client certificate needs its key and a key its certificate (--queue-cert and --queue-key)")
 	}
-	if cfg.CredsFile != "" && cfg.NkeyFile != "" {
-		return errors.New("give a credentials file or an nkey file, not both")
+	var ways []string
+	for _, f := range cfg.authFiles() {
+		ways = append(ways, f.flag)
 	}
-	for _, f := range []struct{ path, what string }{
-		{cfg.CAFile, "CA file"}, {cfg.CertFile, "client certificate"}, {cfg.KeyFile, "client key"},
-		{cfg.CredsFile, "credentials file"}, {cfg.NkeyFile, "nkey file"},
-	} {
+	if len(ways) > 1 {
+		return fmt.Errorf("%s each say how to authenticate to the server: give one of them", strings.Join(ways, " and "))
+	}
+	if len(ways) == 1 && urlCredentials(cfg.URL) {
+		return fmt.Errorf("the server URL carries a user name or token and %s gives credentials too: give one of them (a file: a URL's password shows in the process list and in shell history)", ways[0])
+	}
+	for _, f := range append([]fileOption{{cfg.CAFile, "CA file", "--queue-ca"}, {cfg.CertFile, "client certificate", "--queue-cert"},
+		{cfg.KeyFile, "client key", "--queue-key"}}, cfg.authFiles()...) {
 		if f.path != "" {
-			if err := regularFile(f.path, f.what); err != nil {
+			if err := regularFile(f.path, f.what+" ("+f.flag+")"); err != nil {
 				return err
 			}
 		}
 	}
+	return cfg.checkPEM()
+}
+
+// checkPEM reads the CA file and the client certificate with its key as
+// TLS will, so that a file of another kind, or a key of another
+// certificate, is named with its flag before connecting.
+func (cfg Config) checkPEM() error {
+	if cfg.CAFile != "" {
+		b, err := os.ReadFile(cfg.CAFile)
+		if err != nil {
+			return fmt.Errorf("CA file (--queue-ca) %s: %v", cfg.CAFile, osMsg(err))
+		}
+		if !x509.NewCertPool().AppendCertsFromPEM(b) {
+			return fmt.Errorf("CA file (--queue-ca) %s: holds no PEM certificate (-----BEGIN CERTIFICATE-----): give the certificate of the authority that signed the server's", cfg.CAFile)
+		}
+	}
+	if cfg.CertFile != "" {
+		if _, err := tls.LoadX509KeyPair(cfg.CertFile, cfg.KeyFile); err != nil {
+			return fmt.Errorf("client certificate (--queue-cert) %s with its key (--queue-key) %s: %v: give a PEM certificate and the PEM private key it was made for", cfg.CertFile, cfg.KeyFile, err)
+		}
+	}
 	return nil
+}
+
+// fileOption is a file the configuration names, with what it holds and
+// the flag that gives it.
+type fileOption struct{ path, what, flag string }
+
+// authFiles are the files given to authenticate to the server (at most
+// one is allowed).
+func (cfg Config) authFiles() []fileOption {
+	var out []fileOption
+	for _, f := range []fileOption{{cfg.CredsFile, "credentials file", "--queue-creds"}, {cfg.NkeyFile, "nkey file", "--queue-nkey"},
+		{cfg.LoginFile, "login file", "--queue-login"}, {cfg.TokenFile, "token file", "--queue-token"}} {
+		if f.path != "" {
+			out = append(out, f)
+		}
+	}
+	return out
+}
+
+// urlCredentials tells whether a server URL carries a user name,
+// password or token.
+func urlCredentials(urls string) bool {
+	for _, p := range strings.Split(urls, ",") {
+		if u, err := url.Parse(strings.TrimSpace(p)); err != nil && strings.Contains(p, "@") || err == nil && u.User != nil {
+			return true
+		}
+	}
+	return false
+}
+
+// readLogin reads a login file: the user name on its first line, the
+// password on its second, nothing else but blank lines after them. No
+// message shows what the file holds.
+func readLogin(path string) (user, password string, err error) {
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return "", "", fmt.Errorf("login file (--queue-login) %s: %v", path, osMsg(err))
+	}
+	lines := strings.Split(strings.ReplaceAll(string(b), "\r\n", "\n"), "\n")
+	for len(lines) > 0 && strings.TrimSpace(lines[len(lines)-1]) == "" {
+		lines = lines[:len(lines)-1]
+	}
+	if len(lines) != 2 || strings.TrimSpace(lines[0]) == "" || lines[1] == "" {
+		return "", "", fmt.Errorf("login file (--queue-login) %s: it holds %s; it should hold two: the user name on the first, the password on the second", path, words.Count(len(lines), "line", "lines"))
+	}
+	return strings.TrimSpace(lines[0]), lines[1], nil
+}
+
+// readToken reads a token file: one line, the token (surrounding white
+// space is not part of it). No message shows what the file holds.
+func readToken(path string) (string, error) {
+	b, err := os.ReadFile(path)
+	if err != nil {
+		return "", fmt.Errorf("token file (--queue-token) %s: %v", path, osMsg(err))
+	}
+	tok := strings.TrimSpace(string(b))
+	switch {
+	case tok == "":
+		return "", fmt.Errorf("token file (--queue-token) %s: it is empty; it should hold the token the server expects, on one line", path)
+	case strings.ContainsAny(tok, "\r\n"):
+		return "", fmt.Errorf("token file (--queue-token) %s: it holds more than one line; it should hold the token alone, on one line", path)
+	}
+	return tok, nil
 }
 
 // regularFile refuses a path that is absent or not a regular file.
@@ -161,4 +260,65 @@ func scrub(msg, urls string) string {
 		}
 	}
 	return msg
+}
+
+// explainRefusal words a connection that failed: what the TLS handshake
+// or the server refused and which option to look at, the library's own
+// message (msg, already without secrets) in brackets.
+func (cfg Config) explainRefusal(err error, msg string) string {
+	var unknown x509.UnknownAuthorityError
+	var host x509.HostnameError
+	var invalid x509.CertificateInvalidError
+	auth := cfg.authFiles()
+	switch {
+	case errors.Is(err, nats.ErrNoServers):
+		return fmt.Sprintf("cannot reach the queue server (%s): check that it runs at that address and that --queue names it", msg)
+	case errors.As(err, &unknown) && cfg.CAFile != "":
+		return fmt.Sprintf("the server's TLS certificate is not signed by an authority in the CA file (--queue-ca) %s: give the CA file that signed the server's certificate (%s)", cfg.CAFile, msg)
+	case errors.As(err, &unknown):
+		return fmt.Sprintf("the server's TLS certificate is not signed by an authority this machine trusts: give the CA file that signed it with --queue-ca FILE (or %s) (%s)", EnvCA, msg)
+	case errors.As(err, &host):
+		return fmt.Sprintf("the server's TLS certificate is not for the host that --queue names: give the name or address the certificate is for (%s)", msg)
+	case errors.As(err, &invalid):
+		return fmt.Sprintf("the server's TLS certificate cannot be used (%s): renew it on the server", msg)
+	case remoteTLSRefusal(msg) && cfg.CertFile == "":
+		return fmt.Sprintf("the server asks for a client certificate: give --queue-cert FILE --queue-key FILE (or %s and %s) (%s)", EnvCert, EnvKey, msg)
+	case remoteTLSRefusal(msg):
+		return fmt.Sprintf("the server refused the client certificate (--queue-cert) %s: it is not signed by an authority the server trusts, or is not valid now (%s)", cfg.CertFile, msg)
+	case strings.Contains(msg, "connection closed by remote after TLS handshake") && cfg.CertFile == "":
+		// TLS 1.3: the server checks the client's certificate after the
+		// handshake, and its alert may come after the connection closed.
+		return fmt.Sprintf("the server closed the connection after the TLS handshake, as a server does that asks for a client certificate: give --queue-cert FILE --queue-key FILE (or %s and %s) (%s)", EnvCert, EnvKey, msg)
+	case strings.Contains(msg, "connection closed by remote after TLS handshake"):
+		return fmt.Sprintf("the server closed the connection after the TLS handshake, as a server does that refuses the client certificate (--queue-cert) %s: is it signed by an authority the server trusts, and valid now? (%s)", cfg.CertFile, msg)
+	case errors.Is(err, nats.ErrSecureConnWanted):
+		return fmt.Sprintf("the server does not offer TLS, which a tls:// URL or --queue-ca asks for: give nats://HOST:PORT without --queue-ca, or turn TLS on at the server (%s)", msg)
+	case errors.Is(err, nats.ErrAuthorization) && len(auth) == 0 && !urlCredentials(cfg.URL):
+		return fmt.Sprintf("the server asks for credentials and none were given: give --queue-login FILE, --queue-token FILE, --queue-nkey FILE or --queue-creds FILE (or %s, %s, %s, %s) (%s)", EnvLogin, EnvToken, EnvNkey, EnvCreds, msg)
+	case errors.Is(err, nats.ErrAuthorization) || errors.Is(err, nats.ErrAuthExpired) || errors.Is(err, nats.ErrAuthRevoked):
+		given := "the user name and password (or token) in the --queue URL"
+		if len(auth) > 0 {
+			given = fmt.Sprintf("those of the %s (%s) %s", auth[0].what, auth[0].flag, auth[0].path)
+		}
+		why := "check them against the server's authorization settings"
+		switch {
+		case errors.Is(err, nats.ErrAuthExpired):
+			why = "they have expired"
+		case errors.Is(err, nats.ErrAuthRevoked):
+			why = "they have been revoked"
+		}
+		return fmt.Sprintf("the server refused the credentials, %s: %s (%s)", given, why, msg)
+	}
+	return msg
+}
+
+// remoteTLSRefusal tells whether the server ended the TLS handshake over
+// the client's certificate: none given, or one it does not accept.
+func remoteTLSRefusal(msg string) bool {
+	for _, s := range []string{"tls: certificate required", "tls: bad certificate", "tls: unknown certificate authority", "tls: certificate unknown", "tls: expired certificate"} {
+		if strings.Contains(msg, s) {
+			return true
+		}
+	}
+	return false
 }

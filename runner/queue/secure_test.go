@@ -16,6 +16,7 @@ import (
 	"testing"
 	"time"
 
+	"github.com/nats-io/jwt/v2"
 	"github.com/nats-io/nkeys"
 
 	"ordplan/runner/fit"
@@ -30,6 +31,9 @@ type testPKI struct {
 	ca, cert, key string
 	server        *tls.Config
 	otherCA       string
+	// A client certificate signed by the other CA, which the server does
+	// not trust.
+	otherCert, otherKey string
 }
 
 func newPKI(t *testing.T) *testPKI {
@@ -60,7 +64,9 @@ func newPKI(t *testing.T) *testPKI {
 	ca, caKey := mk("ca", caT, nil, nil)
 	otherT := *caT
 	otherT.SerialNumber = big.NewInt(9)
-	mk("other-ca", &otherT, nil, nil)
+	other, otherKey := mk("other-ca", &otherT, nil, nil)
+	mk("other-client", &x509.Certificate{SerialNumber: big.NewInt(4), Subject: pkix.Name{CommonName: "stranger"}, NotBefore: now.Add(-time.Hour),
+		NotAfter: now.Add(time.Hour), ExtKeyUsage: []x509.ExtKeyUsage{x509.ExtKeyUsageClientAuth}, KeyUsage: x509.KeyUsageDigitalSignature}, other, otherKey)
 	mk("server", &x509.Certificate{SerialNumber: big.NewInt(2), Subject: pkix.Name{CommonName: "127.0.0.1"}, NotBefore: now.Add(-time.Hour),
 		NotAfter: now.Add(time.Hour), IPAddresses: []net.IP{net.ParseIP("127.0.0.1")}, ExtKeyUsage: []x509.ExtKeyUsage{x509.ExtKeyUsageServerAuth},
 		KeyUsage: x509.KeyUsageDigitalSignature}, ca, caKey)
@@ -68,6 +74,7 @@ func newPKI(t *testing.T) *testPKI {
 		NotAfter: now.Add(time.Hour), ExtKeyUsage: []x509.ExtKeyUsage{x509.ExtKeyUsageClientAuth}, KeyUsage: x509.KeyUsageDigitalSignature}, ca, caKey)
 	p.ca, p.cert, p.key = filepath.Join(dir, "ca.pem"), filepath.Join(dir, "client.pem"), filepath.Join(dir, "client-key.pem")
 	p.otherCA = filepath.Join(dir, "other-ca.pem")
+	p.otherCert, p.otherKey = filepath.Join(dir, "other-client.pem"), filepath.Join(dir, "other-client-key.pem")
 	pair, err := tls.LoadX509KeyPair(filepath.Join(dir, "server.pem"), filepath.Join(dir, "server-key.pem"))
 	if err != nil {
 		t.Fatal(err)
@@ -167,5 +174,189 @@ func TestSecretsNotPrinted(t *testing.T) {
 	os.WriteFile(sf, []byte("short\n"), 0o600)
 	if _, err := LoadSecret(sf); err == nil || strings.Contains(err.Error(), "short\n") || !strings.Contains(err.Error(), "at least 16") {
 		t.Errorf("short secret: %v", err)
+	}
+}
+
+// A server that asks for a user name and password, or for a token, is
+// reached with the login or token file (TLS with only a CA file on the
+// login server); a wrong password or token, no credentials, a malformed
+// file, two ways at once, a CA that did not sign the server's certificate,
+// no CA and no client certificate where the server asks for one are each
+// refused with one line naming the option to look at, never the password
+// or token.
+func TestLoginAndTokenFiles(t *testing.T) {
+	ctx := testContext(t, 60*time.Second)
+	pki := newPKI(t)
+	dir := pki.dir
+	write := func(name, text string) string {
+		p := filepath.Join(dir, name)
+		if err := os.WriteFile(p, []byte(text), 0o600); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	login := write("good.login", "ordplan\nhunter2-pw-s3cret\n")
+	wrongLogin := write("wrong.login", "ordplan\r\nhunter2-not-it\r\n")
+	oneLine := write("one.login", "ordplan hunter2-pw-s3cret\n")
+	token := write("good.token", "  tok-hunter2-s3cret\n")
+	wrongToken := write("wrong.token", "tok-hunter2-other\n")
+	emptyToken := write("empty.token", "\n")
+	seed := write("x.nk", "SUAM3TAN6QJ6VIA3DNCQ6ZPCIQQIV2X5VOJX2RFIV6QFWPWTDVKDSE6IYI\n")
+
+	serverTLS := pki.server.Clone()
+	serverTLS.ClientAuth = tls.NoClientCert
+	loginURL := localserver.ForTestWith(t, localserver.Options{TLS: serverTLS, Logins: map[string]string{"ordplan": "hunter2-pw-s3cret"}})
+	tokenURL := localserver.ForTestWith(t, localserver.Options{Token: "tok-hunter2-s3cret"})
+	certURL := localserver.ForTestWith(t, localserver.Options{TLS: pki.server})
+
+	for _, cfg := range []Config{
+		{URL: loginURL, CAFile: pki.ca, LoginFile: login},
+		{URL: tokenURL, TokenFile: token},
+	} {
+		cfg.Secret = testSecret
+		c, err := Connect(ctx, cfg)
+		if err != nil {
+			t.Fatalf("%s: %v", cfg.URL, err)
+		}
+		c.Close()
+	}
+	for _, c := range []struct {
+		name string
+		cfg  Config
+		want string
+	}{
+		{"wrong password", Config{URL: loginURL, CAFile: pki.ca, LoginFile: wrongLogin},
+			"the server refused the credentials, those of the login file (--queue-login) " + wrongLogin + ": check them against the server's authorization settings (nats: Authorization Violation)"},
+		{"no credentials", Config{URL: loginURL, CAFile: pki.ca},
+			"the server asks for credentials and none were given: give --queue-login FILE, --queue-token FILE, --queue-nkey FILE or --queue-creds FILE"},
+		{"a login on one line", Config{URL: loginURL, CAFile: pki.ca, LoginFile: oneLine},
+			"login file (--queue-login) " + oneLine + ": it holds 1 line; it should hold two: the user name on the first, the password on the second"},
+		{"wrong token", Config{URL: tokenURL, TokenFile: wrongToken},
+			"the server refused the credentials, those of the token file (--queue-token) " + wrongToken + ": check them"},
+		{"empty token", Config{URL: tokenURL, TokenFile: emptyToken},
+			"token file (--queue-token) " + emptyToken + ": it is empty; it should hold the token the server expects, on one line"},
+		{"missing token file", Config{URL: tokenURL, TokenFile: filepath.Join(dir, "nope.token")},
+			"token file (--queue-token) " + filepath.Join(dir, "nope.token") + ": no such file or directory"},
+		{"token and login", Config{URL: tokenURL, TokenFile: token, LoginFile: login},
+			"--queue-login and --queue-token each say how to authenticate to the server: give one of them"},
+		{"token and nkey", Config{URL: tokenURL, TokenFile: token, NkeyFile: seed},
+			"--queue-nkey and --queue-token each say how to authenticate to the server: give one of them"},
+		{"a token in the URL and a token file", Config{URL: strings.Replace(tokenURL, "nats://", "nats://tok-hunter2-s3cret@", 1), TokenFile: token},
+			"the server URL carries a user name or token and --queue-token gives credentials too: give one of them"},
+		{"a password in the URL refused", Config{URL: strings.Replace(loginURL, "tls://", "tls://ordplan:hunter2-wrong@", 1), CAFile: pki.ca},
+			"the server refused the credentials, the user name and password (or token) in the --queue URL: check them"},
+		{"another CA", Config{URL: loginURL, CAFile: pki.otherCA, LoginFile: login},
+			"the server's TLS certificate is not signed by an authority in the CA file (--queue-ca) " + pki.otherCA + ": give the CA file that signed the server's certificate (nats: tls error: tls: failed to verify certificate: x509: certificate signed by unknown authority"},
+		{"no CA", Config{URL: loginURL, LoginFile: login},
+			"the server's TLS certificate is not signed by an authority this machine trusts: give the CA file that signed it with --queue-ca FILE (or ORDPLAN_QUEUE_CA)"},
+		{"no client certificate", Config{URL: certURL, CAFile: pki.ca},
+			"a client certificate: give --queue-cert FILE --queue-key FILE (or ORDPLAN_QUEUE_CERT and ORDPLAN_QUEUE_KEY)"},
+		{"a client certificate of another CA", Config{URL: certURL, CAFile: pki.ca, CertFile: pki.otherCert, KeyFile: pki.otherKey},
+			" the client certificate (--queue-cert) " + pki.otherCert + ": "},
+		{"a CA file that is not PEM", Config{URL: loginURL, CAFile: login, LoginFile: login},
+			"CA file (--queue-ca) " + login + ": holds no PEM certificate (-----BEGIN CERTIFICATE-----): give the certificate of the authority that signed the server's"},
+		{"a key of another certificate", Config{URL: certURL, CAFile: pki.ca, CertFile: pki.cert, KeyFile: pki.otherKey},
+			"client certificate (--queue-cert) " + pki.cert + " with its key (--queue-key) " + pki.otherKey + ": tls: private key does not match public key: give a PEM certificate and the PEM private key it was made for"},
+		{"TLS asked of a plain server", Config{URL: tokenURL, CAFile: pki.ca, TokenFile: token},
+			"the server does not offer TLS, which a tls:// URL or --queue-ca asks for: give nats://HOST:PORT without --queue-ca, or turn TLS on at the server"},
+	} {
+		c.cfg.Secret = testSecret
+		cl, err := Connect(ctx, c.cfg)
+		if err == nil {
+			cl.Close()
+			t.Errorf("%s: connected", c.name)
+			continue
+		}
+		msg := err.Error()
+		if !strings.Contains(msg, c.want) || strings.Contains(msg, "\n") {
+			t.Errorf("%s:\n got %s\nwant %s", c.name, msg, c.want)
+		}
+		if strings.Contains(msg, "hunter2") {
+			t.Errorf("%s: a password or token is printed: %s", c.name, msg)
+		}
+	}
+}
+
+// A server in operator mode is reached with a credentials file (a user
+// JWT and its seed, made here): a plan's fit runs through it. A user of an
+// account the server does not know is refused naming the credentials
+// file.
+func TestCredentialsFile(t *testing.T) {
+	ctx := testContext(t, 60*time.Second)
+	dir := t.TempDir()
+	op, _ := nkeys.CreateOperator()
+	opPub, _ := op.PublicKey()
+	opClaims := jwt.NewOperatorClaims(opPub)
+	account := func(name string, jetstream bool) (nkeys.KeyPair, string, string) {
+		kp, _ := nkeys.CreateAccount()
+		pub, _ := kp.PublicKey()
+		c := jwt.NewAccountClaims(pub)
+		c.Name = name
+		if jetstream {
+			c.Limits.JetStreamLimits = jwt.JetStreamLimits{MemoryStorage: -1, DiskStorage: -1, Streams: -1, Consumer: -1}
+		}
+		s, err := c.Encode(op)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return kp, pub, s
+	}
+	_, sysPub, sysJWT := account("SYS", false)
+	opClaims.SystemAccount = sysPub
+	opJWT, err := opClaims.Encode(op)
+	if err != nil {
+		t.Fatal(err)
+	}
+	acc, accPub, accJWT := account("ORDPLAN", true)
+	stranger, _, _ := account("STRANGER", true) // not given to the server
+	creds := func(name string, issuer nkeys.KeyPair) string {
+		u, _ := nkeys.CreateUser()
+		pub, _ := u.PublicKey()
+		seed, _ := u.Seed()
+		uc := jwt.NewUserClaims(pub)
+		uj, err := uc.Encode(issuer)
+		if err != nil {
+			t.Fatal(err)
+		}
+		b, err := jwt.FormatUserConfig(uj, seed)
+		if err != nil {
+			t.Fatal(err)
+		}
+		p := filepath.Join(dir, name)
+		os.WriteFile(p, b, 0o600)
+		return p
+	}
+	good, bad := creds("ordplan.creds", acc), creds("stranger.creds", stranger)
+	url := localserver.ForTestWith(t, localserver.Options{Operator: &localserver.Operator{JWT: opJWT, SystemAccount: sysPub,
+		Accounts: map[string]string{sysPub: sysJWT, accPub: accJWT}}})
+	cfg := Config{URL: url, Name: "creds", CredsFile: good, Secret: testSecret}
+	c, err := Connect(ctx, cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer c.Close()
+	wc, err := Connect(ctx, cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer wc.Close()
+	wctx, cancel := cancelable()
+	defer cancel()
+	go (&Worker{Client: wc, Name: "creds-worker", CacheDir: t.TempDir(), AckWait: 5 * time.Second}).Run(wctx)
+	path, jobs := gssJobs(t, fit.ParallelEffects)
+	co := NewCoordinator(ctx, c, "creds", nil)
+	co.AddData(path)
+	res, errs := co.Execute(jobs)
+	if errs[0] != nil {
+		t.Fatal(errs[0])
+	}
+	sameAsLocal(t, path, jobs[0], res[0])
+
+	cfg.CredsFile = bad
+	if c, err := Connect(ctx, cfg); err == nil {
+		c.Close()
+		t.Error("a user of an unknown account connected")
+	} else if want := "the server refused the credentials, those of the credentials file (--queue-creds) " + bad + ": "; !strings.Contains(err.Error(), want) {
+		t.Errorf("got %v\nwant %s", err, want)
 	}
 }

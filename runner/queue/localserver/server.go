@@ -6,6 +6,7 @@ import (
 	"testing"
 	"time"
 
+	"github.com/nats-io/jwt/v2"
 	"github.com/nats-io/nats-server/v2/server"
 )
 
@@ -15,6 +16,25 @@ import (
 type Options struct {
 	TLS   *tls.Config
 	Nkeys []string // public user nkeys (U...)
+	// Logins are user names and their passwords (name -> password);
+	// with them, clients must give one.
+	Logins map[string]string
+	// Token, when set, is the token clients must give (not with Logins
+	// or Nkeys).
+	Token string
+	// Operator, when set, runs the server in operator mode: clients
+	// authenticate with a credentials file (a user JWT issued by one of
+	// Accounts, and its nkey seed).
+	Operator *Operator
+}
+
+// Operator is the trust chain of a server in operator mode: the operator's
+// JWT, the system account's public key and the account JWTs by public key
+// (each account that runs jobs needs JetStream limits).
+type Operator struct {
+	JWT           string
+	SystemAccount string
+	Accounts      map[string]string
 }
 
 // Start runs a JetStream server on 127.0.0.1 at a free port, storing its
@@ -23,7 +43,7 @@ func Start(dir string) (*server.Server, error) {
 	return StartWith(dir, Options{})
 }
 
-// StartWith is Start with TLS or nkey authentication.
+// StartWith is Start with TLS or authentication (nkeys, logins or a token).
 func StartWith(dir string, o Options) (*server.Server, error) {
 	opts := &server.Options{
 		ServerName: "ordplan-local",
@@ -42,6 +62,25 @@ func StartWith(dir string, o Options) (*server.Server, error) {
 	}
 	for _, k := range o.Nkeys {
 		opts.Nkeys = append(opts.Nkeys, &server.NkeyUser{Nkey: k})
+	}
+	for name, password := range o.Logins {
+		opts.Users = append(opts.Users, &server.User{Username: name, Password: password})
+	}
+	opts.Authorization = o.Token
+	if op := o.Operator; op != nil {
+		claims, err := jwt.DecodeOperatorClaims(op.JWT)
+		if err != nil {
+			return nil, err
+		}
+		r := &server.MemAccResolver{}
+		for pub, acc := range op.Accounts {
+			if err := r.Store(pub, acc); err != nil {
+				return nil, err
+			}
+		}
+		opts.TrustedOperators = []*jwt.OperatorClaims{claims}
+		opts.SystemAccount = op.SystemAccount
+		opts.AccountResolver = r
 	}
 	s, err := server.NewServer(opts)
 	if err != nil {
@@ -62,7 +101,7 @@ func ForTest(tb testing.TB) string {
 	return ForTestWith(tb, Options{})
 }
 
-// ForTestWith is ForTest with TLS or nkey authentication.
+// ForTestWith is ForTest with TLS or authentication.
 func ForTestWith(tb testing.TB, o Options) string {
 	tb.Helper()
 	s, err := StartWith(tb.TempDir(), o)
