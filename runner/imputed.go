@@ -895,7 +895,7 @@ func imputedNotes(m int, sampling bool) []string {
 // 1.427 (Wald 3.210 times (G-q)/((G-1) q), G = 10 clusters)".
 func TestStatistic(t fit.Test) string {
 	if t.FRef {
-		return fmt.Sprintf("F(%d, %s) = %s (Wald %s times (G-q)/((G-1) q), G = %s clusters)", t.DF, numfmt.Num(t.DF2), numfmt.Stat(t.F), numfmt.Stat(t.Chi2), numfmt.Num(t.DF2+float64(t.DF)))
+		return t.FRefStatistic()
 	}
 	if t.Pooled == "" {
 		return fmt.Sprintf("chi2(%d) = %s", t.DF, numfmt.Stat(t.Chi2))

@@ -267,14 +267,20 @@ var ScaleNearZeroMeaning = fmt.Sprintf("a constraint group's g, its slopes in eq
 
 // Clause says which g is near zero and by how much: "g of arm and sex.F
 // is near zero (Wald test of g = 0: chi-square 0.033 on 2 df, p =
-// 0.9837; phi_4 = 16.2, standard error 89.4)".
+// 0.9837; phi_4 = 16.2, standard error 89.4)"; on a cluster-robust
+// covariance the statistic is the F its p-value is read from
+// (Test.FRefStatistic).
 func (nz NearZeroScale) Clause() string {
 	of := words.AndList(nz.Predictors)
 	if nz.Group != "" {
 		of = fmt.Sprintf("group %s (%s)", nz.Group, of)
 	}
-	return fmt.Sprintf("g of %s is near zero (Wald test of g = 0: chi-square %s on %d df, %s; phi_%d = %.3g, standard error %.3g)",
-		of, numfmt.Stat(nz.Test.Chi2), nz.Test.DF, numfmt.PText(nz.Test.P), nz.PhiAt, nz.LargestPhi, nz.LargestPhiSE)
+	stat := fmt.Sprintf("chi-square %s on %d df", numfmt.Stat(nz.Test.Chi2), nz.Test.DF)
+	if nz.Test.FRef {
+		stat = nz.Test.FRefStatistic()
+	}
+	return fmt.Sprintf("g of %s is near zero (Wald test of g = 0: %s, %s; phi_%d = %.3g, standard error %.3g)",
+		of, stat, numfmt.PText(nz.Test.P), nz.PhiAt, nz.LargestPhi, nz.LargestPhiSE)
 }
 
 // CheckScale sets r.NearZeroScale to the constraint groups whose g is

@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"ordplan/internal/words"
+	"ordplan/render/numfmt"
 
 	"gonum.org/v1/gonum/mat"
 	"gonum.org/v1/gonum/stat/distuv"
@@ -154,6 +155,14 @@ func (t Test) MarshalJSON() ([]byte, error) {
 		DF   *int     `json:"df"`
 		P    *float64 `json:"p"`
 	}{plain: plain(t)})
+}
+
+// FRefStatistic writes a Wald test on a cluster-robust covariance (FRef)
+// as the F its p-value is read from, with the Wald statistic it comes
+// from: "F(2, 8) = 1.427 (Wald 3.210 times (G-q)/((G-1) q), G = 10
+// clusters)".
+func (t Test) FRefStatistic() string {
+	return fmt.Sprintf("F(%d, %s) = %s (Wald %s times (G-q)/((G-1) q), G = %s clusters)", t.DF, numfmt.Num(t.DF2), numfmt.Stat(t.F), numfmt.Stat(t.Chi2), numfmt.Num(t.DF2+float64(t.DF)))
 }
 
 func failedTest(name, format string, a ...any) Test {

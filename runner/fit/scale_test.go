@@ -148,3 +148,23 @@ func TestRefittedStartCounts(t *testing.T) {
 		t.Errorf("g of a group with no effect in equation 1 not reported near zero: %+v", res.NearZeroScale)
 	}
 }
+
+// TestNearZeroClauseClustered: on a cluster-robust covariance of G
+// clusters the Wald test of g = 0 is read as W (G-q)/((G-1) q) on F(q,
+// G-q), and the warning gives that F, not a chi-square on q df whose p
+// would disagree with the p-value shown. W = 9.022, q = 2, G = 7: F =
+// 3.7592, p = 0.1008 (R: pf(9.022*5/12, 2, 5, lower.tail = FALSE) =
+// 0.1008228; pchisq(9.022, 2, lower.tail = FALSE) = 0.011 would be
+// the chi-square's).
+func TestNearZeroClauseClustered(t *testing.T) {
+	r := &Result{RefDF: 6}
+	nz := NearZeroScale{Predictors: []string{"programme", "shift"}, Group: "g1", Test: r.waldTest(9.022, 2), PhiAt: 2, LargestPhi: 1.14, LargestPhiSE: 0.799}
+	got := nz.Clause()
+	want := "g of group g1 (programme and shift) is near zero (Wald test of g = 0: F(2, 5) = 3.759 (Wald 9.022 times (G-q)/((G-1) q), G = 7 clusters), p = 0.1008; phi_2 = 1.14, standard error 0.799)"
+	if got != want {
+		t.Errorf("Clause:\n got %s\nwant %s", got, want)
+	}
+	if math.Abs(nz.Test.P-0.1008228) > 1e-6 {
+		t.Errorf("p = %.7f, R's pf gives 0.1008228", nz.Test.P)
+	}
+}
