@@ -203,12 +203,7 @@ func writeEarlierRegistered(d *doc, earlier []runner.EarlierRun) {
 	items := make([]string, len(earlier))
 	same := 0
 	for i, e := range earlier {
-		data := "on other data (sha256 `" + short(e.DataSHA256) + "`)"
-		if e.SameData {
-			data = "on the same data"
-			same++
-		}
-		items[i] = fmt.Sprintf("decisions.json sha256 `%s`, %s", short(e.DecisionsSHA256), data)
+		items[i] = earlierRunItem(e, &same)
 	}
 	runs := "1 run"
 	if len(earlier) > 1 {
@@ -237,11 +232,6 @@ func writeUnderEarlierLocks(d *doc, st *lock.Status, runs []runner.EarlierLockRu
 	items := make([]string, len(runs))
 	same := 0
 	for i, e := range runs {
-		data := "on other data (sha256 `" + short(e.DataSHA256) + "`)"
-		if e.SameData {
-			data = "on the same data"
-			same++
-		}
 		under := fmt.Sprintf("under the lock frozen at %s, canonical sha256 `%s`", e.LockFrozenAt, e.LockSHA256)
 		if e.LockRegistration != "" {
 			under += ", registration " + e.LockRegistration
@@ -258,7 +248,7 @@ func writeUnderEarlierLocks(d *doc, st *lock.Status, runs []runner.EarlierLockRu
 		case lock.StateUnexplained:
 			how = "the plan then departed from it with changes forced by `--allow-unregistered-changes`"
 		}
-		items[i] = fmt.Sprintf("decisions.json sha256 `%s`, %s; %s; %s", short(e.DecisionsSHA256), data, under, how)
+		items[i] = fmt.Sprintf("%s; %s; %s", earlierRunItem(e.EarlierRun, &same), under, how)
 	}
 	lead := fmt.Sprintf("**This output folder already held %s made under an earlier lock of this plan**", words.Count(len(runs), "run", "runs"))
 	if same > 0 {
@@ -272,4 +262,16 @@ func writeUnderEarlierLocks(d *doc, st *lock.Status, runs []runner.EarlierLockRu
 	}
 	d.p("%s: %s. They are named by the SHA-256 of their decisions.json (in this folder's run.json or under earlier/), each with the lock its run.json records:", lead, since)
 	d.list(items)
+}
+
+// earlierRunItem names an earlier run of the output folder by its
+// decisions.json and says whether it read this run's data, counting it in
+// same when it did.
+func earlierRunItem(e runner.EarlierRun, same *int) string {
+	data := "on other data (sha256 `" + short(e.DataSHA256) + "`)"
+	if e.SameData {
+		data = "on the same data"
+		*same++
+	}
+	return fmt.Sprintf("decisions.json sha256 `%s`, %s", short(e.DecisionsSHA256), data)
 }

@@ -17,12 +17,8 @@ import (
 // log line or run.json shows the password. A wrong password is refused in
 // one line naming the login file (Q17), without the password.
 func TestQueueLoginFile(t *testing.T) {
+	plan, local, remote := localReference(t, "gss_grid")
 	dir := t.TempDir()
-	plan := filepath.Join("..", "..", "runner", "testdata", "gss_grid.yaml")
-	local, remote := filepath.Join(dir, "local"), filepath.Join(dir, "queue")
-	if out, errs, code := runCLI("run", plan, "--out", local, "--quiet"); code != 0 {
-		t.Fatalf("local run: exit %d: %s %s", code, out, errs)
-	}
 	url := localserver.ForTestWith(t, localserver.Options{Logins: map[string]string{"ordplan": "hunter2-pw-s3cret"}})
 	login, wrong := filepath.Join(dir, "queue.login"), filepath.Join(dir, "wrong.login")
 	os.WriteFile(login, []byte("ordplan\nhunter2-pw-s3cret\n"), 0o600)

@@ -191,16 +191,25 @@ func waitRun(t *testing.T, ch <-chan [3]string, limit time.Duration) [3]string {
 	return [3]string{}
 }
 
+// localReference runs the reference plan testdata/NAME.yaml of runner
+// here, into a temporary folder, and returns the plan and the folders of
+// the local run (written) and of the queued run to compare with it.
+func localReference(t *testing.T, name string) (plan, local, remote string) {
+	t.Helper()
+	dir := t.TempDir()
+	plan = filepath.Join("..", "..", "runner", "testdata", name+".yaml")
+	local, remote = filepath.Join(dir, "local"), filepath.Join(dir, "queue")
+	if out, errs, code := runCLI("run", plan, "--out", local, "--quiet"); code != 0 {
+		t.Fatalf("local run: exit %d: %s %s", code, out, errs)
+	}
+	return plan, local, remote
+}
+
 // A plan run through the queue writes the same files as a local run, byte
 // for byte, although the worker holding a job is killed: the job goes to
 // another worker after its ack deadline.
 func TestQueueRunSurvivesKilledWorker(t *testing.T) {
-	dir := t.TempDir()
-	plan := filepath.Join("..", "..", "runner", "testdata", "gss_stepwise.yaml")
-	local, remote := filepath.Join(dir, "local"), filepath.Join(dir, "queue")
-	if out, errs, code := runCLI("run", plan, "--out", local, "--quiet"); code != 0 {
-		t.Fatalf("local run: exit %d: %s %s", code, out, errs)
-	}
+	plan, local, remote := localReference(t, "gss_stepwise")
 	url := localserver.ForTest(t)
 	victim := startWorkerProc(t, url, "victim", holdEnv+"=60s")
 	run := runAsync("run", plan, "--out", remote, "--queue", url)
@@ -230,12 +239,7 @@ var batchLine = regexp.MustCompile(`(\d+) fits: (\d+) results present, (\d+) job
 // already stored, publishes only the missing jobs and writes the same
 // files as a local run.
 func TestQueueCoordinatorRestartResumes(t *testing.T) {
-	dir := t.TempDir()
-	plan := filepath.Join("..", "..", "runner", "testdata", "gss_grid.yaml")
-	local, remote := filepath.Join(dir, "local"), filepath.Join(dir, "queue")
-	if out, errs, code := runCLI("run", plan, "--out", local, "--quiet"); code != 0 {
-		t.Fatalf("local run: exit %d: %s %s", code, out, errs)
-	}
+	plan, local, remote := localReference(t, "gss_grid")
 	url := localserver.ForTest(t)
 	ctx, cancel := context.WithTimeout(context.Background(), 90*time.Second)
 	defer cancel()
@@ -245,7 +249,7 @@ func TestQueueCoordinatorRestartResumes(t *testing.T) {
 	}
 	defer nc.Close()
 	slow := startWorkerProc(t, url, "slow", holdEnv+"=250ms")
-	first := startProc(t, nil, "run", plan, "--out", filepath.Join(dir, "first"), "--queue", url)
+	first := startProc(t, nil, "run", plan, "--out", filepath.Join(t.TempDir(), "first"), "--queue", url)
 	first.waitLog(t, 30*time.Second, "published")
 	js, _ := jetstream.New(nc)
 	kv, err := js.KeyValue(ctx, queue.ResultBucket)

@@ -2,7 +2,6 @@ package main
 
 import (
 	"os"
-	"path/filepath"
 	"strings"
 	"syscall"
 	"testing"
@@ -43,12 +42,7 @@ func TestWorkerStopsCleanlyOnSignal(t *testing.T) {
 // (130, 143) without waiting for the job; another worker then computes
 // the job and the run it belongs to ends as a local run does.
 func TestWorkerSecondSignalGivesJobsBack(t *testing.T) {
-	dir := t.TempDir()
-	plan := filepath.Join("..", "..", "runner", "testdata", "gss_stepwise.yaml")
-	local, remote := filepath.Join(dir, "local"), filepath.Join(dir, "queue")
-	if out, errs, code := runCLI("run", plan, "--out", local, "--quiet"); code != 0 {
-		t.Fatalf("local run: exit %d: %s %s", code, out, errs)
-	}
+	plan, local, remote := localReference(t, "gss_stepwise")
 	url := localserver.ForTest(t)
 	run := runAsync("run", plan, "--out", remote, "--queue", url)
 	for _, sig := range []syscall.Signal{syscall.SIGINT, syscall.SIGTERM} {

@@ -1,6 +1,7 @@
 package queue
 
 import (
+	"context"
 	"crypto/ecdsa"
 	"crypto/elliptic"
 	"crypto/rand"
@@ -85,6 +86,34 @@ func newPKI(t *testing.T) *testPKI {
 	return p
 }
 
+// fitThrough connects a coordinator and a worker with cfg and checks that
+// a fit of the General Social Survey extract (Long 1997) made through them
+// is the local fit.
+func fitThrough(t *testing.T, ctx context.Context, cfg Config) {
+	t.Helper()
+	c, err := Connect(ctx, cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer c.Close()
+	wc, err := Connect(ctx, cfg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer wc.Close()
+	wctx, cancel := cancelable()
+	defer cancel()
+	go (&Worker{Client: wc, Name: cfg.Name + "-worker", CacheDir: t.TempDir(), AckWait: 5 * time.Second}).Run(wctx)
+	path, jobs := gssJobs(t, fit.ParallelEffects)
+	co := NewCoordinator(ctx, c, cfg.Name, nil)
+	co.AddData(path)
+	res, errs := co.Execute(jobs)
+	if errs[0] != nil {
+		t.Fatal(errs[0])
+	}
+	sameAsLocal(t, path, jobs[0], res[0])
+}
+
 // A server that requires TLS with client certificates and nkey
 // authentication is reached with the CA file, the client certificate and
 // key, and the nkey seed file; a plan's fits run through it. Without any
@@ -104,29 +133,7 @@ func TestSecureConnection(t *testing.T) {
 	if !strings.HasPrefix(url, "tls://") {
 		t.Fatalf("url %s", url)
 	}
-	full := Config{URL: url, Name: "secure", CAFile: pki.ca, CertFile: pki.cert, KeyFile: pki.key, NkeyFile: seedFile, Secret: testSecret}
-	c, err := Connect(ctx, full)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer c.Close()
-	wc, err := Connect(ctx, full)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer wc.Close()
-	wctx, cancel := cancelable()
-	defer cancel()
-	wlog := &LogBuffer{}
-	go (&Worker{Client: wc, Name: "secure-worker", CacheDir: t.TempDir(), AckWait: 5 * time.Second, Log: wlog}).Run(wctx)
-	path, jobs := gssJobs(t, fit.ParallelEffects)
-	co := NewCoordinator(ctx, c, "secure", nil)
-	co.AddData(path)
-	res, errs := co.Execute(jobs)
-	if errs[0] != nil {
-		t.Fatal(errs[0])
-	}
-	sameAsLocal(t, path, jobs[0], res[0])
+	fitThrough(t, ctx, Config{URL: url, Name: "secure", CAFile: pki.ca, CertFile: pki.cert, KeyFile: pki.key, NkeyFile: seedFile, Secret: testSecret})
 
 	for name, cfg := range map[string]Config{
 		"no CA":          {URL: url, CertFile: pki.cert, KeyFile: pki.key, NkeyFile: seedFile, Secret: testSecret},
@@ -209,17 +216,8 @@ func TestLoginAndTokenFiles(t *testing.T) {
 	tokenURL := localserver.ForTestWith(t, localserver.Options{Token: "tok-hunter2-s3cret"})
 	certURL := localserver.ForTestWith(t, localserver.Options{TLS: pki.server})
 
-	for _, cfg := range []Config{
-		{URL: loginURL, CAFile: pki.ca, LoginFile: login},
-		{URL: tokenURL, TokenFile: token},
-	} {
-		cfg.Secret = testSecret
-		c, err := Connect(ctx, cfg)
-		if err != nil {
-			t.Fatalf("%s: %v", cfg.URL, err)
-		}
-		c.Close()
-	}
+	fitThrough(t, ctx, Config{URL: loginURL, Name: "login", CAFile: pki.ca, LoginFile: login, Secret: testSecret})
+	fitThrough(t, ctx, Config{URL: tokenURL, Name: "token", TokenFile: token, Secret: testSecret})
 	for _, c := range []struct {
 		name string
 		cfg  Config
@@ -330,27 +328,7 @@ func TestCredentialsFile(t *testing.T) {
 	url := localserver.ForTestWith(t, localserver.Options{Operator: &localserver.Operator{JWT: opJWT, SystemAccount: sysPub,
 		Accounts: map[string]string{sysPub: sysJWT, accPub: accJWT}}})
 	cfg := Config{URL: url, Name: "creds", CredsFile: good, Secret: testSecret}
-	c, err := Connect(ctx, cfg)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer c.Close()
-	wc, err := Connect(ctx, cfg)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer wc.Close()
-	wctx, cancel := cancelable()
-	defer cancel()
-	go (&Worker{Client: wc, Name: "creds-worker", CacheDir: t.TempDir(), AckWait: 5 * time.Second}).Run(wctx)
-	path, jobs := gssJobs(t, fit.ParallelEffects)
-	co := NewCoordinator(ctx, c, "creds", nil)
-	co.AddData(path)
-	res, errs := co.Execute(jobs)
-	if errs[0] != nil {
-		t.Fatal(errs[0])
-	}
-	sameAsLocal(t, path, jobs[0], res[0])
+	fitThrough(t, ctx, cfg)
 
 	cfg.CredsFile = bad
 	if c, err := Connect(ctx, cfg); err == nil {
