@@ -712,7 +712,45 @@ func (a *Analysis) CheckDesign(r Reading, dz *design.Design, ds *data.Dataset, d
 	if err := fit.CheckDesign(d); err != nil {
 		return a.designError(r, dz, ds.FewRowsSentence(), err, "")
 	}
+	if ds != nil {
+		if err := a.someCandidateFits(dz, d); err != nil {
+			return a.designError(r, dz, ds.FewRowsSentence(), err, "")
+		}
+	}
 	return a.checkGridLevels(r, dz)
+}
+
+// someCandidateFits refuses a plan none of whose candidate models can be
+// fitted on d because each has more parameters than observations
+// (fit.TooFewObservations, the refusal each fit would make), naming the
+// candidate with the fewest; nil when one can, or when the plan lists
+// none before its fits (a partial set selected stepwise: gridModels).
+// Such a run has nothing to choose from, as when a term is constant for
+// every model, so it is refused before any fit rather than reported with
+// every candidate not fitted.
+func (a *Analysis) someCandidateFits(dz *design.Design, d *fit.Data) error {
+	var fewest error
+	least := -1
+	for _, e := range gridModels(a, termsOf(dz)) {
+		if e.Auxiliary || e.Err != "" {
+			continue
+		}
+		m, err := e.Spec.Model()
+		if err != nil {
+			continue
+		}
+		refused := fit.TooFewObservations(d, m, a.Fit.Sampling)
+		if refused == nil {
+			return nil
+		}
+		if P, err := fit.NumParams(m, d.J, d.Predictors); err == nil && (least < 0 || P < least) {
+			least, fewest = P, refused
+		}
+	}
+	if fewest == nil {
+		return nil
+	}
+	return fmt.Errorf("no candidate model can be fitted, each having more parameters than observations (the one with the fewest: %w)", fewest)
 }
 
 // checkGridLevels refuses a level that a closeness rule's grid lists and

@@ -2056,7 +2056,47 @@ func catalogue(dir string) (items []badInput) {
 		{id: "M19", name: "near-collinear predictors (near = a plus a wobble of 2e-4)", args: fitArgs(d("scales.csv"), "--predictors", "a,near,b"), code: 0,
 			want: []string{"Status           ok", "Warning: near-collinearity: the slopes of a and near have variance inflation ", "; at least 100 means standard errors about 10 times or more those of columns unrelated to the other terms (exactly so for a term of one column; for a term of several columns GVIF^(1/df) is a geometric mean over its dimensions)"}},
 		{id: "M3", name: "constant predictor in a plan run", args: []string{"run"}, plan: edit("[a, b]", "[a, c]"), code: 1,
-			want: []string{`"c" is constant`}},
+			want: []string{`"c" is constant`},
+			check: func(t *testing.T, dir, out, errs string) {
+				// z observed in the first row of each category (3 rows
+				// kept), then in two more (5): with 3 no candidate of the
+				// plan can be fitted (4 parameters at least), which check
+				// and run refuse before any fit, saying why so few rows
+				// remain; with 5 the parallel models are fitted and the
+				// nonparallel ones (6 parameters) are not.
+				for _, extra := range []int{0, 2} {
+					seen := map[string]bool{}
+					more := 0
+					withColumns(t, dir, "M3loss.csv", "z", func(i int, f []string) string {
+						if !seen[f[0]] {
+							seen[f[0]] = true
+							return fmt.Sprint(i % 4)
+						}
+						if i > 60 && more < extra {
+							more++
+							return fmt.Sprint(i % 3)
+						}
+						return ""
+					})
+					pl := filepath.Join(dir, "M3loss.yaml")
+					os.WriteFile(pl, []byte(edit("file: d.csv", "file: M3loss.csv", "[a, b]", "[a, z]")), 0o644)
+					kept := 3 + extra
+					want := fmt.Sprintf(`M3loss.csv: outcome "y": no candidate model can be fitted, each having more parameters than observations (the one with the fewest: model cumulative/parallel/logit has 4 parameters but only %d observations). Only %d of the 120 rows read are used: %d of 120 rows dropped for missing values (z: %d). Predictor column "z" is observed in %d of the 120 rows`, kept, kept, 120-kept, 120-kept, kept)
+					for _, args := range [][]string{{"check", pl}, {"run", pl, "--out", filepath.Join(dir, "M3loss-out"), "--quiet"}} {
+						_, e, code := runCLI(args...)
+						refused := code == 1 && strings.Contains(e, want)
+						if refused != (extra == 0) || extra > 0 && strings.Contains(e, "no candidate model") {
+							t.Errorf("%s on %d rows: exit %d:\n%s\nwant refused: %v, with %q", args[0], kept, code, e, extra == 0, want)
+						}
+					}
+					if extra > 0 {
+						rep, err := os.ReadFile(filepath.Join(dir, "M3loss-out", "report.md"))
+						if err != nil || !strings.Contains(string(rep), "not fitted: model cumulative/nonparallel/logit has 6 parameters but only 5 observations") || strings.Contains(string(rep), "not fitted: model cumulative/parallel/logit") {
+							t.Errorf("on 5 rows the parallel models are fitted and the nonparallel ones not: %v", err)
+						}
+					}
+				}
+			}},
 		{id: "M4", name: "complete separation", args: fitArgs(d("sep.csv"), "--predictors", "x,z"), code: 1,
 			want: []string{"no finite maximum likelihood estimate", "predictors involved: x", "category boundaries: "}, known: separationMissed},
 		{id: "M5", name: "quasi-complete separation", args: fitArgs(d("quasi1.csv"), "--predictors", "g,z", "--nonparallel", "g"), code: 1,

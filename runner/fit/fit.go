@@ -367,6 +367,19 @@ func tooFewObservations(m Model, params int, nobs float64) error {
 	return &InputError{Msg: fmt.Sprintf("model %s has %d parameters but only %g observations", m.Name(), params, nobs), FewObservations: true}
 }
 
+// TooFewObservations is the refusal a fit of model m on d makes when the
+// model has more parameters than observations (tooFewObservations; the
+// rows count as observations under sampling weights), nil otherwise, and
+// for a model it cannot lay out (the fit says why): for a caller that asks
+// before fitting.
+func TooFewObservations(d *Data, m Model, sampling bool) error {
+	ly, err := newLayout(m, d.J, d.Predictors)
+	if err != nil {
+		return nil
+	}
+	return tooFewObservations(m, len(ly.params), d.observations(sampling))
+}
+
 // Fit estimates model m on data d.
 func Fit(d *Data, m Model, opt Options) (*Result, error) {
 	return fitFrom(d, m, opt, nil)
