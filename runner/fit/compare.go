@@ -169,6 +169,11 @@ func (k *kernel) between(a, b float64, derivs bool) (m middle, ok bool) {
 		// tails.
 		return logitMiddle(newLogitPoint(a), newLogitPoint(b))
 	}
+	if derivs && (k.link == Probit || k.link == Cauchy) {
+		if m, ok, done := tableBetween(k.link, a, b); done {
+			return m, ok
+		}
+	}
 	m.lp = logDiffCDF(k.link, a, b)
 	if math.IsInf(m.lp, -1) || math.IsNaN(m.lp) {
 		return m, false

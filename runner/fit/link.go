@@ -78,7 +78,7 @@ func (l Link) lower(z float64) tail {
 		return tail{t.v, -t.d1, t.d2}
 	case Cauchy:
 		if math.Abs(z) <= cauchyFast {
-			v, lam, dlam := cauchyNear(z, false)
+			v, lam, dlam := cauchyNear(z, 2)
 			return tail{v, lam, dlam}
 		}
 		v, F := cauchyLogCDF(z)
@@ -138,7 +138,7 @@ func (l Link) logTail(z float64, up bool) float64 {
 			z = -z
 		}
 		if math.Abs(z) <= cauchyFast {
-			v, _, _ := cauchyNear(z, true)
+			v, _, _ := cauchyNear(z, 0)
 			return v
 		}
 		v, _ := cauchyLogCDF(z)

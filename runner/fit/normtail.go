@@ -216,9 +216,9 @@ func init() {
 }
 
 // cauchyNear returns log F(z), lam = f(z)/F(z) and lam's derivative
-// under the cauchy link for |z| <= cauchyFast (the caller checks); with
-// value only, the derivatives are not formed.
-func cauchyNear(z float64, value bool) (v, lam, dlam float64) {
+// under the cauchy link for |z| <= cauchyFast (the caller checks), to
+// derivatives of order at most order (the others 0).
+func cauchyNear(z float64, order int) (v, lam, dlam float64) {
 	k := int(z*probitPerUnit + (float64(cauchyMid) + 0.5))
 	u := z - float64(k-cauchyMid)*(1.0/probitPerUnit) // exact
 	t := &cauchyTable[k]
@@ -227,12 +227,72 @@ func cauchyNear(z float64, value bool) (v, lam, dlam float64) {
 	u8 := u4 * u4
 	b := &t.b
 	v = (b[0] + b[1]*u + u2*(b[2]+b[3]*u)) + u4*((b[4]+b[5]*u)+u2*(b[6]+b[7]*u)) + u8*(b[8]+b[9]*u+u2*b[10])
-	if value {
+	if order == 0 {
 		return v, 0, 0
 	}
 	l := &t.l
 	lam = (l[0] + l[1]*u + u2*(l[2]+l[3]*u)) + u4*((l[4]+l[5]*u)+u2*(l[6]+l[7]*u)) + u8*(l[8]+l[9]*u)
+	if order == 1 {
+		return v, lam, 0
+	}
 	d := &t.dl
 	dlam = (d[0] + d[1]*u + u2*(d[2]+d[3]*u)) + u4*((d[4]+d[5]*u)+u2*(d[6]+d[7]*u)) + u8*d[8]
 	return v, lam, dlam
+}
+
+// tableBetween is kernel.between with derivatives for the probit and
+// cauchy links when both boundaries lie within the link's table (done
+// false otherwise): log P as logDiffCDF forms it, bit for bit, and the
+// ratios from the tails' own f/F instead of the densities' exponentials.
+// Below the median (0) P = F(b) (1 - E), E = e^(t_a - t_b), t = log F,
+// so f(b)/P = lam_b / D and f(a)/P = lam_a E / D with D = 1 - E (from
+// expm1 while E > 1/2, as log1mexp takes it); above it, the mirror image:
+// the links are symmetric, P(a, b) = F(-a) - F(-b), so the same with
+// (-b, -a), the ratios and second derivatives swapped.
+func tableBetween(l Link, a, b float64) (m middle, ok, done bool) {
+	lim := probitFast
+	if l == Cauchy {
+		lim = cauchyFast
+	}
+	if !(math.Abs(a) <= lim && math.Abs(b) <= lim) {
+		return m, false, false
+	}
+	up := 0.5*(a+b) > 0
+	if up {
+		a, b = -b, -a
+	}
+	var ta, la, tb, lb float64
+	if l == Probit {
+		ta, la = probitNear(a, false)
+		tb, lb = probitNear(b, false)
+	} else {
+		ta, la, _ = cauchyNear(a, 1)
+		tb, lb, _ = cauchyNear(b, 1)
+	}
+	x := ta - tb
+	var D, E, lD float64
+	if x > -math.Ln2 {
+		D = -math.Expm1(x)
+		E, lD = 1-D, fastLog(D)
+	} else {
+		E = fastExp(x)
+		D, lD = 1-E, fastLog1p(-E)
+	}
+	m.lp = tb + lD
+	if math.IsInf(m.lp, -1) || math.IsNaN(m.lp) {
+		return m, false, true
+	}
+	inv := 1 / D
+	m.rb, m.ra = lb*inv, la*E*inv
+	// f'/f as logDensity forms it, without the log-density itself
+	qa, qb := -a, -b
+	if l == Cauchy {
+		qa, qb = -2*a/(1+a*a), -2*b/(1+b*b)
+	}
+	m.setSecond(qa, qb)
+	if up {
+		m.ra, m.rb = m.rb, m.ra
+		m.haa, m.hbb = m.hbb, m.haa
+	}
+	return m, true, true
 }
