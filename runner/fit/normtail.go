@@ -24,7 +24,7 @@ import "math"
 // coefficients shrink at least as 2.8^-k and the first term left out,
 // the ninth power, is below (64 2.8)^-9, 1e-20, of the scale below 0.
 // linkfast_test.go
-// (TestLinkFastAgreesWithMath, TestProbitTailDense) compares the tails
+// (TestLinkFastAgreesWithMath, TestTailTablesDense) compares the tails
 // with package math's erfc.
 
 const (
