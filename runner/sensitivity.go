@@ -274,7 +274,7 @@ func sensitivityRunRecords(r *Result) []SensitivityRunRecord {
 // SensitivityWarnings are the lines ordplan run prints on standard error
 // for the sensitivity analyses: those that could not be run, and each
 // warning of an analysis that ran (SensitivityResult.Warnings), named by
-// the analysis.
+// the analysis, its key and plan line (Sensitivity.Title), as check names it.
 func SensitivityWarnings(r *Result) []string {
 	var out []string
 	for _, sr := range r.Sensitivity {
@@ -282,7 +282,7 @@ func SensitivityWarnings(r *Result) []string {
 			out = append(out, fmt.Sprintf("%s could not be run: %s", sr.Sensitivity.Title(), sr.Err))
 		}
 		for _, w := range sr.Warnings(r) {
-			out = append(out, fmt.Sprintf("sensitivity analysis %s: %s", sr.Sensitivity.Name, w))
+			out = append(out, sr.Sensitivity.Title()+": "+w)
 		}
 	}
 	return out

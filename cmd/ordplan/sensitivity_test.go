@@ -294,7 +294,8 @@ func TestSensitivityThroughQueue(t *testing.T) {
 // fits do not read the covariance): the report says that only its errors
 // and intervals, and the decisions that read the covariance (a Wald-test
 // rule, named), are informative, and does not count it as agreement. Its
-// warnings (too few clusters) are printed and reported, named by it.
+// warnings (too few clusters) are printed, named by it, its key and its
+// plan line as check names them, and reported.
 func TestSensitivityErrorsOnly(t *testing.T) {
 	dir := t.TempDir()
 	sensitivityData(t, dir)
@@ -323,7 +324,9 @@ func TestSensitivityErrorsOnly(t *testing.T) {
 			// The analysis's own warnings (12 districts, fewer than 40),
 			// on the console named by it and in its section.
 			few := `outcome y: data.cluster: column "district" holds 12 clusters in the`
-			if !strings.Contains(stderr, "sensitivity analysis clustered: "+few) {
+			// Named as check names it: by its key and plan line.
+			line := strings.Count(src[:strings.Index(src, "  - name: clustered")], "\n") + 1
+			if !strings.Contains(stderr, fmt.Sprintf("warning: %s: sensitivity analysis \"clustered\" (sensitivity[0], line %d): %s", plan, line, few)) {
 				t.Errorf("stderr lacks the analysis's few-clusters warning:\n%s", stderr)
 			}
 			if !bytes.Contains(report, []byte("**Warnings of the sensitivity analysis clustered**")) || !bytes.Contains(report, []byte("- "+few)) {
