@@ -190,6 +190,29 @@ func writeUnusedDeviations(d *doc, st *lock.Status) {
 	d.list(items)
 }
 
+// heldRuns begins the sentence of the runs an output folder held: "**This
+// output folder already held 2 runs WHAT**, 1 of them on the same data as
+// this run" ("1 run WHAT**, on the same data as this run" for one run);
+// one says whether the sentence goes on in the singular (sing).
+func heldRuns(n, same int, what string) (lead string, one bool) {
+	lead = fmt.Sprintf("**This output folder already held %s %s**", words.Count(n, "run", "runs"), what)
+	switch {
+	case n == 1 && same == 1:
+		lead += ", on the same data as this run"
+	case same > 0:
+		lead += fmt.Sprintf(", %d of them on the same data as this run", same)
+	}
+	return lead, n == 1
+}
+
+// sing is singular if one, else plural.
+func sing(one bool, singular, plural string) string {
+	if one {
+		return singular
+	}
+	return plural
+}
+
 // writeEarlierRegistered says which runs of the registered plan, unchanged,
 // the output folder held when this run, which departs from it, was made:
 // their results existed before the deviations were run, which a reader
@@ -205,15 +228,9 @@ func writeEarlierRegistered(d *doc, earlier []runner.EarlierRun) {
 	for i, e := range earlier {
 		items[i] = earlierRunItem(e, &same)
 	}
-	runs := "1 run"
-	if len(earlier) > 1 {
-		runs = fmt.Sprintf("%d runs", len(earlier))
-	}
-	lead := fmt.Sprintf("**This output folder already held %s of the registered plan unchanged**", runs)
-	if same > 0 {
-		lead += fmt.Sprintf(", %d of them on the same data as this run", same)
-	}
-	d.p("%s: their results existed before this run departed from the plan, so the deviations above may have been chosen after seeing them. They are named by the SHA-256 of their decisions.json (in this folder's run.json or under earlier/):", lead)
+	lead, one := heldRuns(len(earlier), same, "of the registered plan unchanged")
+	d.p("%s: %s existed before this run departed from the plan, so the deviations above may have been chosen after seeing them. %s named by the SHA-256 of %s decisions.json (in this folder's run.json or under earlier/):",
+		lead, sing(one, "its results", "their results"), sing(one, "It is", "They are"), sing(one, "its", "their"))
 	d.list(items)
 }
 
@@ -250,17 +267,15 @@ func writeUnderEarlierLocks(d *doc, st *lock.Status, runs []runner.EarlierLockRu
 		}
 		items[i] = fmt.Sprintf("%s; %s; %s", earlierRunItem(e.EarlierRun, &same), under, how)
 	}
-	lead := fmt.Sprintf("**This output folder already held %s made under an earlier lock of this plan**", words.Count(len(runs), "run", "runs"))
-	if same > 0 {
-		lead += fmt.Sprintf(", %d of them on the same data as this run", same)
-	}
+	lead, one := heldRuns(len(runs), same, "made under an earlier lock of this plan")
+	its := sing(one, "its results", "their results")
 	var since string
 	if st.State == lock.StateNone {
-		since = "their results existed before the plan's lock was removed. They are runs of a registration the plan no longer has"
+		since = fmt.Sprintf("%s existed before the plan's lock was removed. %s of a registration the plan no longer has", its, sing(one, "It is a run", "They are runs"))
 	} else {
-		since = fmt.Sprintf("their results existed before the plan was frozen anew as %s, so the changes made in freezing it anew may have been chosen after seeing them. They are not runs of the registered plan, which counts only from the time of %s", mdCode(st.LockFile), mdCode(st.LockFile))
+		since = fmt.Sprintf("%s existed before the plan was frozen anew as %s, so the changes made in freezing it anew may have been chosen after seeing them. %s of the registered plan, which counts only from the time of %s", its, mdCode(st.LockFile), sing(one, "It is not a run", "They are not runs"), mdCode(st.LockFile))
 	}
-	d.p("%s: %s. They are named by the SHA-256 of their decisions.json (in this folder's run.json or under earlier/), each with the lock its run.json records:", lead, since)
+	d.p("%s: %s. %s named by the SHA-256 of %s decisions.json (in this folder's run.json or under earlier/), %s the lock its run.json records:", lead, since, sing(one, "It is", "They are"), sing(one, "its", "their"), sing(one, "with", "each with"))
 	d.list(items)
 }
 

@@ -148,12 +148,17 @@ func earlierLocksNote(st *lock.Status, runs []runner.EarlierLockRun) string {
 			locks = append(locks, l)
 		}
 	}
-	since := "before the plan was frozen anew, and they are not runs of the registered plan, which counts only from " + st.LockFile + "'s time"
+	// One run in the singular, several in the plural.
+	their, notRuns, them := "their results", "they are not runs", "them"
+	if len(runs) == 1 {
+		their, notRuns, them = "its results", "it is not a run", "it"
+	}
+	since := "before the plan was frozen anew, and " + notRuns + " of the registered plan, which counts only from " + st.LockFile + "'s time"
 	if st.State == lock.StateNone {
 		since = "before the plan's lock (" + st.LockFile + ") was removed"
 	}
-	return fmt.Sprintf("the output folder held %s made under an earlier lock of this plan (%s): their results existed %s; the report lists them",
-		words.Count(len(runs), "run", "runs"), strings.Join(locks, "; "), since)
+	return fmt.Sprintf("the output folder held %s made under an earlier lock of this plan (%s): %s existed %s; the report lists %s",
+		words.Count(len(runs), "run", "runs"), strings.Join(locks, "; "), their, since, them)
 }
 
 // registrationLine is the one-line summary check and run print.

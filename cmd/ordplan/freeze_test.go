@@ -117,7 +117,8 @@ func TestDeviationsNameEarlierRegisteredRuns(t *testing.T) {
 	os.WriteFile(planPath, []byte(strings.Replace(src, "{by: aic}", "{by: bic}", 1)+
 		"deviations:\n  - key: rules[1].choose.by\n    reason: BIC, as the protocol's section 4 says\n"), 0o644)
 	md, dec := run(o)
-	for _, s := range []string{"**This output folder already held 1 run of the registered plan unchanged**, 1 of them on the same data as this run: their results existed before this run departed from the plan",
+	for _, s := range []string{"**This output folder already held 1 run of the registered plan unchanged**, on the same data as this run: its results existed before this run departed from the plan",
+		"It is named by the SHA-256 of its decisions.json",
 		"- decisions.json sha256 `" + want[:12] + "`, on the same data"} {
 		if !strings.Contains(md, s) {
 			t.Errorf("report.md lacks %q:\n%s", s, md)
@@ -176,7 +177,7 @@ func TestRunsUnderEarlierLocksListed(t *testing.T) {
 	os.CopyFS(prev, os.DirFS(o))
 	out, md, dec := run("--previous", prev)
 	for _, s := range []string{
-		"note: the output folder held 1 run made under an earlier lock of this plan (frozen " + firstAt + ", kept as " + kept + "): their results existed before the plan was frozen anew, and they are not runs of the registered plan, which counts only from p.lock.json's time; the report lists them\n",
+		"note: the output folder held 1 run made under an earlier lock of this plan (frozen " + firstAt + ", kept as " + kept + "): its results existed before the plan was frozen anew, and it is not a run of the registered plan, which counts only from p.lock.json's time; the report lists it\n",
 		"The plan was frozen anew between the two runs (the earlier run's lock is kept as " + kept + "): the earlier run is not a run of the plan as registered now, whose registration counts from " + secondAt + ".",
 	} {
 		if !strings.Contains(out, s) {
@@ -185,8 +186,8 @@ func TestRunsUnderEarlierLocksListed(t *testing.T) {
 	}
 	item := "- decisions.json sha256 `" + decHash[:12] + "`, on the same data; under the lock frozen at " + firstAt + ", canonical sha256 `" + firstHash + "`, registration REG 14, kept as `" + kept + "`; the plan then matched it"
 	for _, s := range []string{
-		"**This output folder already held 1 run made under an earlier lock of this plan**, 1 of them on the same data as this run: their results existed before the plan was frozen anew as `p.lock.json`",
-		"They are not runs of the registered plan, which counts only from the time of `p.lock.json`.",
+		"**This output folder already held 1 run made under an earlier lock of this plan**, on the same data as this run: its results existed before the plan was frozen anew as `p.lock.json`",
+		"It is not a run of the registered plan, which counts only from the time of `p.lock.json`. It is named by the SHA-256 of its decisions.json (in this folder's run.json or under earlier/), with the lock its run.json records:",
 		item,
 	} {
 		if !strings.Contains(md, s) {
