@@ -165,17 +165,25 @@ func writeStability(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	d.p("Assumptions and limits of this study: it is a bootstrap of a selection procedure on the %s used, so every resample resembles these data, not a new sample from the population; the shares are estimates, with the Monte Carlo error in brackets from %d resamples and a sampling error from the data themselves that the brackets do not show. A resample repeats units, and a model that fits the data only roughly fits a resample more roughly still: a test of a restriction tends to give a larger statistic in a resample (in large samples, when the less constrained model fits, about a noncentral chi-squared on the test's degrees of freedom with the data's statistic as its noncentrality, so on average the data's statistic plus its degrees of freedom), so tests reject restrictions more often in resamples than they would in new samples where the restriction holds, and the shares lean towards the less constrained models. A small share for the model the primary analysis chose means that data slightly different would have led the same rules to another model; when a test kept the choice with a statistic close enough to its critical value that this noncentral chi-squared lies mostly beyond it, that lean alone makes the share small, and the share then tells how near the rule's margin the choice sits rather than how often a new study would repeat it. Either way the chosen model's intervals, which treat it as fixed in advance, leave that uncertainty out.", unitWord(st), st.Resamples)
 }
 
-// writeRedrawn says how many bootstrap draws were set aside and drawn
-// again because they lacked a category of the outcome, a level of a
-// categorical predictor or a combination of levels an interaction reads
-// that the data hold (runner.Stability.SetAside), what they lacked most
-// often, and what that conditioning does to the shares. Nothing when no
-// draw was set aside and no unit alone holds such a value.
+// writeRedrawn says how many draws were set aside and drawn again because
+// they lacked a category of the outcome, a level of a categorical
+// predictor or a combination of levels an interaction reads that the data
+// hold (runner.Stability.SetAside), what they lacked most often, and what
+// that conditioning does to the shares: of bootstrap resamples, or of
+// sets of outcomes simulated from the chosen model, which keep the rows
+// and so can lack only a category. Nothing when no draw was set aside and
+// no unit alone holds such a value.
 func writeRedrawn(d *doc, st *runner.Stability) {
-	if simulatedDraw(st) || st.MaxDraws == 0 || (st.SetAside == 0 && st.AlwaysDrawn == 0) || st.AlwaysDrawn >= st.Units {
+	if st.MaxDraws == 0 || (st.SetAside == 0 && st.AlwaysDrawn == 0) || st.AlwaysDrawn >= st.Units {
 		return
 	}
-	s := fmt.Sprintf("A resample must hold every category of the outcome, every level of each categorical predictor and every combination of levels that an interaction of categorical predictors reads, as the data do, or the same models cannot be fitted to it: a draw lacking one was set aside and another drawn from the resample's own stream (at most %d for one resample), and a draw that lacks nothing is kept as the plain bootstrap draws it.", st.MaxDraws)
+	one, many, _, _ := stabilityNouns(st)
+	var s string
+	if simulatedDraw(st) {
+		s = fmt.Sprintf("A simulated set must hold every category of the outcome, as the data do, or the same models cannot be fitted to it: a set of outcomes lacking one was set aside and another drawn from the set's own stream (at most %d for one set), and a set that lacks none is kept as drawn.", st.MaxDraws)
+	} else {
+		s = fmt.Sprintf("A resample must hold every category of the outcome, every level of each categorical predictor and every combination of levels that an interaction of categorical predictors reads, as the data do, or the same models cannot be fitted to it: a draw lacking one was set aside and another drawn from the resample's own stream (at most %d for one resample), and a draw that lacks nothing is kept as the plain bootstrap draws it.", st.MaxDraws)
+	}
 	if st.SetAside == 0 {
 		s += " No draw lacked one here."
 	} else {
@@ -183,7 +191,12 @@ func writeRedrawn(d *doc, st *runner.Stability) {
 		for _, l := range st.Lacking {
 			lacked = append(lacked, fmt.Sprintf("%s (%d draw%s)", l.What, l.Draws, plural(l.Draws)))
 		}
-		s += fmt.Sprintf(" Here %d of the %d resamples needed another draw, with %d draw%s set aside in all; what they lacked most often: %s.", st.Redrawn, st.Resamples, st.SetAside, plural(st.SetAside), words.AndList(lacked))
+		s += fmt.Sprintf(" Here %d of the %d %s needed another draw, with %d draw%s set aside in all; what they lacked most often: %s.", st.Redrawn, st.Resamples, many, st.SetAside, plural(st.SetAside), words.AndList(lacked))
+	}
+	if simulatedDraw(st) {
+		s += fmt.Sprintf(" The shares are therefore those of the procedure on sets drawn from the chosen model conditional on every category appearing, the sets on which it can run; where a category is drawn rarely, a %s kept holds it somewhat more often than the model alone gives.", one)
+		d.p("%s", mdText(s))
+		return
 	}
 	s += " The shares are therefore those of a bootstrap conditional on all of these appearing"
 	if st.AlwaysDrawn > 0 {
@@ -460,7 +473,11 @@ func stabilityMethods(r *runner.Result, or *runner.OutcomeResult) string {
 		return ""
 	}
 	if simulatedDraw(st) {
-		return fmt.Sprintf("How often the decision procedure recovers the chosen model was assessed, as the plan fixed in advance, by drawing new outcomes %d times from %s with its estimates at the %d rows used (predictors, weights, offsets and clusters kept; seed %d), repeating the whole decision procedure (grid, tests and rules, in order) on each simulated set with the terms' constants kept from the primary analysis, and reporting how often each model was chosen (with its Monte Carlo standard error), how often each rule rejected each model and how often each hypothesis was rejected in the model chosen there.", st.Resamples, st.Primary, st.Units, st.Seed)
+		anew := ""
+		if st.SetAside > 0 {
+			anew = "; a set lacking a category of the outcome that the data hold was drawn again, so the sets are conditional on each appearing"
+		}
+		return fmt.Sprintf("How often the decision procedure recovers the chosen model was assessed, as the plan fixed in advance, by drawing new outcomes %d times from %s with its estimates at the %d rows used (predictors, weights, offsets and clusters kept; seed %d%s), repeating the whole decision procedure (grid, tests and rules, in order) on each simulated set with the terms' constants kept from the primary analysis, and reporting how often each model was chosen (with its Monte Carlo standard error), how often each rule rejected each model and how often each hypothesis was rejected in the model chosen there.", st.Resamples, st.Primary, st.Units, st.Seed, anew)
 	}
 	anew := ""
 	if st.SetAside > 0 {

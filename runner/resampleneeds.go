@@ -25,7 +25,10 @@ const MaxStabilityDraws = 100
 // that lacks one is set aside and another drawn from the same stream, so
 // the resamples are the bootstrap's conditional on holding them all (a
 // draw that holds them is kept as it is, so where none lacks anything the
-// resamples are those of the plain bootstrap).
+// resamples are those of the plain bootstrap). Outcomes simulated from the
+// chosen model (draw: chosen_model) keep the rows, so only the outcome's
+// categories can be lacking: a set lacking one is set aside the same way
+// (drawHolding).
 type resampleNeeds struct {
 	facets []needFacet
 	// forced counts the units (rows, clusters, frequency-weighted units)
@@ -47,7 +50,8 @@ type needFacet struct {
 func needsOf(dz *design.Design, ds *data.Dataset, outcome string) *resampleNeeds {
 	n := &resampleNeeds{}
 	col := func(s int) int { return slices.Index(ds.Predictors, dz.Sources[s].Name) }
-	// The outcome.
+	// The outcome, first: lacking reads a draw's own outcomes there when
+	// it draws new ones.
 	f := needFacet{row: make([]int32, ds.N)}
 	for i, y := range ds.Y {
 		f.row[i] = -1
@@ -159,15 +163,29 @@ func (n *resampleNeeds) countForced(ds *data.Dataset) {
 	n.forced = len(forced)
 }
 
-// lacking lists what the resample of ds's rows (with their weights, nil
-// without) lacks of what n needs, at most max items (all when max <= 0).
-func (n *resampleNeeds) lacking(rows []int, weights []float64, max int) []string {
+// aDraw is one draw of a repetition of selection_stability: the rows of
+// the data drawn from that its rows are (indices, in its order), their
+// weights (nil without) and, when the draw gives them new outcomes
+// (simulated from the chosen model), those outcomes (nil: the rows' own).
+type aDraw struct {
+	rows    []int
+	weights []float64
+	y       []int
+}
+
+// lacking lists what draw d lacks of what n needs, at most max items (all
+// when max <= 0).
+func (n *resampleNeeds) lacking(d aDraw, max int) []string {
 	var out []string
-	for _, f := range n.facets {
+	for fi, f := range n.facets {
 		seen := make([]bool, len(f.names))
 		left := len(f.names)
-		for k, i := range rows {
-			if v := f.row[i]; v >= 0 && !seen[v] && (weights == nil || weights[k] > 0) {
+		for k, i := range d.rows {
+			v := f.row[i]
+			if fi == 0 && d.y != nil { // the outcome's facet: the outcomes drawn
+				v = int32(d.y[k])
+			}
+			if v >= 0 && !seen[v] && (d.weights == nil || d.weights[k] > 0) {
 				seen[v] = true
 				left--
 				if left == 0 {
@@ -188,23 +206,47 @@ func (n *resampleNeeds) lacking(rows []int, weights []float64, max int) []string
 }
 
 // drawResample draws one bootstrap resample of ds from rng that holds
-// everything n needs (nil n: the first draw): draws lacking something are
-// set aside, what each lacked kept in lacked, up to MaxStabilityDraws in
-// all. A non-empty failed says no draw held it all, or none can vary.
+// everything n needs (nil n: the first draw), through drawHolding. A
+// non-empty failed says no draw held it all, or none can vary.
 func drawResample(ds *data.Dataset, n *resampleNeeds, rng *rand.Rand) (out *data.Dataset, lacked [][]string, failed string) {
 	if n != nil && n.forced >= n.units && n.units > 0 {
 		unit, _ := resampleUnit(ds)
 		return nil, nil, fmt.Sprintf("each of the %d %s alone holds a category or level of the data (or a combination an interaction reads), so a resample holding them all is the data again and cannot vary: no resample is drawn", n.units, unit)
 	}
+	var cluster []string
+	d, lacked, failed := n.drawHolding(func() (aDraw, error) {
+		rows, weights, c := resampleRows(ds, rng)
+		cluster = c
+		return aDraw{rows: rows, weights: weights}, nil
+	})
+	if failed != "" {
+		return nil, lacked, failed
+	}
+	return resampleOf(ds, d.rows, d.weights, cluster), lacked, ""
+}
+
+// drawHolding makes draws (draw) until one holds everything n needs (nil
+// n: the first is kept): a draw lacking something is set aside, what it
+// lacked kept in lacked, and another made from the same stream, up to
+// MaxStabilityDraws in all, so the repetitions are conditional on holding
+// it all while a draw lacking nothing is kept as it was drawn. The one
+// such loop, for bootstrap resamples (drawResample) and outcomes simulated
+// from the chosen model (simulatedOutcome). A non-empty failed says no
+// draw held it all, or a draw failed (its error).
+func (n *resampleNeeds) drawHolding(draw func() (aDraw, error)) (d aDraw, lacked [][]string, failed string) {
 	for range MaxStabilityDraws {
-		rows, weights, cluster := resampleRows(ds, rng)
+		d, err := draw()
+		if err != nil {
+			return aDraw{}, lacked, err.Error()
+		}
 		if n != nil {
-			if l := n.lacking(rows, weights, 0); len(l) > 0 {
+			if l := n.lacking(d, 0); len(l) > 0 {
 				lacked = append(lacked, l)
 				continue
 			}
 		}
-		return resampleOf(ds, rows, weights, cluster), lacked, ""
+		return d, lacked, ""
 	}
-	return nil, lacked, fmt.Sprintf("none of %d draws held every category and level of the data (the last lacked %s), so the resample was not drawn", MaxStabilityDraws, strings.Join(lacked[len(lacked)-1][:min(3, len(lacked[len(lacked)-1]))], ", "))
+	last := lacked[len(lacked)-1]
+	return aDraw{}, lacked, fmt.Sprintf("none of %d draws held every category and level of the data (the last lacked %s), so the resample was not drawn", MaxStabilityDraws, strings.Join(last[:min(3, len(last))], ", "))
 }

@@ -399,9 +399,7 @@ func runStability(an *Analysis, res *Result, opt Options) {
 	}
 	needs := make([]*resampleNeeds, len(res.Outcomes))
 	for oi, or := range res.Outcomes {
-		if st.Draw != plan.StabilityChosenModel {
-			needs[oi] = needsOf(or.Design, resampled(or), or.Outcome.Column)
-		}
+		needs[oi] = needsOf(or.Design, resampled(or), or.Outcome.Column)
 	}
 	passes := make([][]stabilityPass, st.Resamples) // [r][outcome]
 	var wg sync.WaitGroup
@@ -518,16 +516,39 @@ func resampleOutcome(an *Analysis, rd Reading, primary *OutcomeResult, n *resamp
 }
 
 // simulatedOutcome draws one set of outcomes from the primary analysis's
-// chosen model at its rows (SimulateChosen) and runs the decision
-// procedure and the hypotheses on it, as resampleOutcome does.
-func simulatedOutcome(an *Analysis, rd Reading, primary *OutcomeResult, _ *resampleNeeds, rng *rand.Rand) (or *OutcomeResult, _ [][]string, failed string) {
+// chosen model at its rows (SimulateChosen) that holds every category of
+// the outcome the data hold, as a bootstrap resample must (drawHolding,
+// with n's needs: a set lacking one is set aside and another drawn), and
+// runs the decision procedure and the hypotheses on it, as
+// resampleOutcome does.
+func simulatedOutcome(an *Analysis, rd Reading, primary *OutcomeResult, n *resampleNeeds, rng *rand.Rand) (or *OutcomeResult, lacked [][]string, failed string) {
 	defer internalFailure(&or, &failed)
-	ds, err := SimulateChosen(primary, rng)
-	if err != nil {
-		return nil, nil, err.Error()
+	ds, lacked, failed := drawSimulated(primary, n, rng)
+	if failed != "" {
+		return nil, lacked, failed
 	}
 	or, failed = decideDrawn(an, rd, primary, ds)
-	return or, nil, failed
+	return or, lacked, failed
+}
+
+// drawSimulated draws one set of outcomes from the primary analysis's
+// chosen model at its rows (SimulateChosen) that holds everything n needs
+// (nil n: the first set), through drawHolding, as drawResample draws a
+// resample.
+func drawSimulated(primary *OutcomeResult, n *resampleNeeds, rng *rand.Rand) (ds *data.Dataset, lacked [][]string, failed string) {
+	_, lacked, failed = n.drawHolding(func() (aDraw, error) {
+		var rows []int
+		var err error
+		ds, rows, err = SimulateChosen(primary, rng)
+		if err != nil {
+			return aDraw{}, err
+		}
+		return aDraw{rows: rows, weights: ds.Weights, y: ds.Y}, nil
+	})
+	if failed != "" {
+		return nil, lacked, failed
+	}
+	return ds, lacked, ""
 }
 
 // SimulateChosen draws new outcomes at the rows the primary analysis used
@@ -537,23 +558,25 @@ func simulatedOutcome(an *Analysis, rd Reading, primary *OutcomeResult, _ *resam
 // simulation of the program); a row of frequency weight w is w units, each
 // drawn apart, so that it becomes one row per category drawn, weighted by
 // how many of its units drew it (in category order, the rows in the order
-// of the data).
-func SimulateChosen(primary *OutcomeResult, rng *rand.Rand) (*data.Dataset, error) {
+// of the data). rows are the rows used that the set's rows are, in order.
+func SimulateChosen(primary *OutcomeResult, rng *rand.Rand) (*data.Dataset, []int, error) {
 	if primary.Chosen == nil || primary.Chosen.Result == nil {
-		return nil, fmt.Errorf("the primary analysis chose no model, so there is no model to draw outcomes from")
+		return nil, nil, fmt.Errorf("the primary analysis chose no model, so there is no model to draw outcomes from")
 	}
 	ds := primary.Data
 	J := len(ds.Categories)
 	P, err := primary.Chosen.Result.Probabilities(primary.FitData.X, primary.FitData.Offset)
 	if err != nil {
-		return nil, fmt.Errorf("the probabilities of %s at the rows used: %v", primary.Chosen.ID, err)
+		return nil, nil, fmt.Errorf("the probabilities of %s at the rows used: %v", primary.Chosen.ID, err)
 	}
 	freq := ds.Weights != nil && !ds.Sampling
 	out := *ds
 	out.Y, out.X, out.Lines, out.Weights, out.Offset, out.Cluster = nil, nil, nil, nil, nil, nil
 	out.Counts = make([]float64, J)
 	out.Incomplete = 0
+	var rows []int
 	add := func(i, y int, w float64) {
+		rows = append(rows, i)
 		out.Y = append(out.Y, y)
 		out.X = append(out.X, ds.X[i*ds.K:(i+1)*ds.K]...)
 		out.Lines = append(out.Lines, ds.Lines[i])
@@ -572,7 +595,7 @@ func SimulateChosen(primary *OutcomeResult, rng *rand.Rand) (*data.Dataset, erro
 	for i := range ds.N {
 		p := P[i*J : (i+1)*J]
 		if slices.ContainsFunc(p, func(v float64) bool { return !(v >= 0) }) {
-			return nil, fmt.Errorf("%s gives a negative probability at data line %d, so no outcome can be drawn there", primary.Chosen.ID, ds.Lines[i])
+			return nil, nil, fmt.Errorf("%s gives a negative probability at data line %d, so no outcome can be drawn there", primary.Chosen.ID, ds.Lines[i])
 		}
 		if !freq {
 			w := 1.0
@@ -593,7 +616,7 @@ func SimulateChosen(primary *OutcomeResult, rng *rand.Rand) (*data.Dataset, erro
 		}
 	}
 	out.N = len(out.Y)
-	return &out, nil
+	return &out, rows, nil
 }
 
 // decideDrawn runs the decision procedure and the hypotheses on a data
@@ -680,7 +703,11 @@ func summarizeStability(an *Analysis, or *OutcomeResult, ps []stabilityPass, st 
 		s.Primary = or.Chosen.ID
 	}
 	if needs != nil {
-		s.MaxDraws, s.AlwaysDrawn = MaxStabilityDraws, needs.forced
+		s.MaxDraws = MaxStabilityDraws
+		if s.Draw == "" {
+			// Simulated outcomes keep every row: no unit is drawn.
+			s.AlwaysDrawn = needs.forced
+		}
 		lacks := map[string]int{}
 		var order []string
 		for _, p := range ps {

@@ -12,6 +12,7 @@ import (
 	"strings"
 	"testing"
 
+	"ordplan/internal/testsurvey"
 	"ordplan/plan"
 	"ordplan/runner/data"
 	"ordplan/runner/fit"
@@ -411,6 +412,74 @@ func TestDrawResampleConditional(t *testing.T) {
 	}
 }
 
+// TestDrawSimulatedConditional: outcomes drawn from the chosen model at the
+// rows used (draw: chosen_model) lacking a category the data hold are set
+// aside and drawn again, as bootstrap draws are: on 120 rows where
+// category 3 is rare, the share of first draws set aside agrees with the
+// chance that independent draws miss it at every row, the product over
+// the rows of 1 - P(y = 3) (a product of independent misses); every set
+// kept holds each category, and a first draw lacking nothing is the plain
+// draw of the same stream.
+func TestDrawSimulatedConditional(t *testing.T) {
+	dir := t.TempDir()
+	if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(testsurvey.RareThird(rand.New(rand.NewPCG(11, 12)), 120)), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(dir, "p.yaml")
+	src := "version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [x]\n" +
+		"models: {approaches: [cumulative], effects: [parallel]}\ntests: {parallel_lines: []}\n" +
+		"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\n"
+	if err := os.WriteFile(path, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	p, err := plan.Load(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Run(p, Options{Workers: 1, NoStability: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	or := res.Outcomes[0]
+	P, err := or.Chosen.Result.Probabilities(or.FitData.X, or.FitData.Offset)
+	if err != nil {
+		t.Fatal(err)
+	}
+	miss := 1.0
+	for i := range or.Data.N {
+		miss *= 1 - P[i*3+2]
+	}
+	if miss < 0.05 || miss > 0.8 {
+		t.Fatalf("the chance of a set without category 3 is %.3f: the data do not test the redraw", miss)
+	}
+	n := needsOf(or.Design, or.Data, "y")
+	const R = 3000
+	first := 0
+	for r := range R {
+		got, lacked, failed := drawSimulated(or, n, resampleRNG(4, 0, r))
+		if failed != "" {
+			t.Fatalf("set %d failed: %s", r, failed)
+		}
+		if len(lacked) > 0 {
+			first++
+			if !slices.Equal(lacked[0], []string{"y = 3"}) {
+				t.Fatalf("set %d lacked %q", r, lacked[0])
+			}
+		} else if plain, _, _ := SimulateChosen(or, resampleRNG(4, 0, r)); !slices.Equal(plain.Y, got.Y) {
+			t.Fatalf("set %d lacked nothing but differs from the plain draw", r)
+		}
+		for c := range 3 {
+			if !slices.Contains(got.Y, c) {
+				t.Fatalf("set %d kept without category %d", r, c+1)
+			}
+		}
+	}
+	se := math.Sqrt(miss * (1 - miss) / R)
+	if share := float64(first) / R; math.Abs(share-miss) > 4*se {
+		t.Errorf("share of first sets lacking category 3 %.4f, want %.4f +- %.4f", share, miss, 4*se)
+	}
+}
+
 // blankEvery blanks x (the second field) in every k-th data row of the
 // CSV file at path.
 func blankEvery(t *testing.T, path string, k int) {
@@ -521,11 +590,11 @@ func TestSimulateChosen(t *testing.T) {
 		}
 		or := res.Outcomes[0]
 		ds := or.Data
-		one, err := SimulateChosen(or, rand.New(rand.NewPCG(5, 6)))
+		one, _, err := SimulateChosen(or, rand.New(rand.NewPCG(5, 6)))
 		if err != nil {
 			t.Fatal(err)
 		}
-		two, _ := SimulateChosen(or, rand.New(rand.NewPCG(5, 6)))
+		two, _, _ := SimulateChosen(or, rand.New(rand.NewPCG(5, 6)))
 		if !slices.Equal(one.Y, two.Y) || !slices.Equal(one.Weights, two.Weights) {
 			t.Errorf("%s: the same stream gave two sets", kind)
 		}

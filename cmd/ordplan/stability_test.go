@@ -4,12 +4,14 @@ import (
 	"bytes"
 	"encoding/json"
 	"fmt"
+	"math/rand/v2"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 	"time"
 
+	"ordplan/internal/testsurvey"
 	"ordplan/runner/queue/localserver"
 )
 
@@ -154,6 +156,41 @@ func TestSelectionStabilityChosenModelOutputs(t *testing.T) {
 	}
 	if strings.Contains(reports[0], "bootstrap resamples of the data used here") {
 		t.Error("the section describes bootstrap resamples")
+	}
+}
+
+// TestChosenModelSetsLackingACategory: with draw: chosen_model, on 120
+// rows where category 3 is rare (invented, seeded), a simulated set
+// lacking it is set aside and drawn again rather than failing: the
+// section counts the sets redrawn and what they lacked, the Methods
+// sentence says the sets are conditional on each category appearing, the
+// stability CSV has its redrawn row, and no set fails.
+func TestChosenModelSetsLackingACategory(t *testing.T) {
+	dir := t.TempDir()
+	if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(testsurvey.RareThird(rand.New(rand.NewPCG(11, 12)), 120)), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	src := "version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\npredictors: [x]\n" +
+		"models: {approaches: [cumulative], effects: [parallel]}\ntests: {parallel_lines: []}\n" +
+		"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\n" +
+		"selection_stability: {resamples: 40, seed: 3, draw: chosen_model}\n"
+	if err := os.WriteFile(filepath.Join(dir, "p.yaml"), []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "out")
+	if o, errs, code := runCLI("run", filepath.Join(dir, "p.yaml"), "--out", out, "--quiet"); code != 0 {
+		t.Fatalf("exit %d: %s %s", code, o, errs)
+	}
+	rep, _ := os.ReadFile(filepath.Join(out, "report.md"))
+	csv, _ := os.ReadFile(filepath.Join(out, "table-stability-y.csv"))
+	for _, want := range []string{"A simulated set must hold every category of the outcome, as the data do", "simulated sets needed another draw", "what they lacked most often: y = 3 (",
+		"conditional on every category appearing", "a set lacking a category of the outcome that the data hold was drawn again, so the sets are conditional on each appearing"} {
+		if !strings.Contains(string(rep), want) {
+			t.Errorf("report.md lacks %q", want)
+		}
+	}
+	if !strings.Contains(string(csv), "\nredrawn,") || !strings.Contains(string(csv), "\nfailed,,,,,0,40,") {
+		t.Errorf("the stability CSV has no redrawn row or counts failed sets:\n%s", csv)
 	}
 }
 

@@ -125,3 +125,18 @@ func Grouped(rng *rand.Rand) (y int, x float64, g int) {
 	y = Category(rng.Float64(), 0.8*x+[]float64{0, 0.5, -0.4}[g], []float64{-0.4, 0.9})
 	return y, x, g
 }
+
+// RareThird is the CSV text (header y,x) of n rows of a survey whose
+// third outcome category is rare: x standard normal, then y in 1..3 from
+// a cumulative logit (Category) with linear predictor x and cutpoints 0
+// and 4 (P(y = 3) about 0.03), so that outcomes drawn anew at its rows
+// often lack category 3.
+func RareThird(rng *rand.Rand, n int) string {
+	var b strings.Builder
+	b.WriteString("y,x\n")
+	for range n {
+		x := rng.NormFloat64()
+		fmt.Fprintf(&b, "%d,%.5f\n", Category(rng.Float64(), x, []float64{0, 4}), x)
+	}
+	return b.String()
+}
