@@ -130,6 +130,14 @@ type StabilityHypothesis struct {
 	High      *float64 `json:"high,omitempty"`
 }
 
+// stabilityAlpha is the level a hypothesis counts as rejected at in a
+// resample, 1 minus the confidence level, rounded to 12 decimals so that
+// 0.95 gives 0.05 as the report says and decisions.json records, not the
+// difference as computed (0.050000000000000044).
+func stabilityAlpha(level float64) float64 {
+	return math.Round((1-level)*1e12) / 1e12
+}
+
 // stabilityPass is what one resample of one outcome gave.
 type stabilityPass struct {
 	failed string // the procedure failed entirely: why
@@ -459,7 +467,7 @@ func resamplePasses(an *Analysis, res *Result, needs []*resampleNeeds, r int, se
 		sub.Outcomes = append(sub.Outcomes, ror)
 	}
 	adjustHypotheses(an, sub)
-	alpha := 1 - an.Level
+	alpha := stabilityAlpha(an.Level)
 	for oi, ror := range sub.Outcomes {
 		if out[oi].failed != "" {
 			continue
@@ -695,7 +703,7 @@ func resampleImputedOutcome(an *Analysis, rd Reading, primary *OutcomeResult, n 
 func summarizeStability(an *Analysis, or *OutcomeResult, ps []stabilityPass, st *plan.SelectionStability, needs *resampleNeeds) *Stability {
 	R := len(ps)
 	unit, units := resampleUnit(resampled(or))
-	s := &Stability{Imputed: imputesResamples(or), Resamples: R, Seed: st.Seed, Unit: unit, Units: units, Alpha: 1 - an.Level, Level: an.Level}
+	s := &Stability{Imputed: imputesResamples(or), Resamples: R, Seed: st.Seed, Unit: unit, Units: units, Alpha: stabilityAlpha(an.Level), Level: an.Level}
 	if st.Draw == plan.StabilityChosenModel {
 		s.Draw, s.Unit, s.Units = st.Draw, UnitRows, or.Data.N
 	}

@@ -115,6 +115,11 @@ func TestStabilityOfAClearChoice(t *testing.T) {
 	if r := st.Rules[1]; r.Kind != "reject_if_test_rejects" || r.Rejected[0].Model != "stage/parallel/logit" || r.Rejected[0].Share.Rate < 0.95 {
 		t.Errorf("rule 2's rejections: %+v", r)
 	}
+	// The level of a rejection in a resample is 1 minus the confidence
+	// level 0.95 as the report writes it, 0.05, not 0.050000000000000044.
+	if st.Alpha != 0.05 {
+		t.Errorf("alpha %v, want 0.05", st.Alpha)
+	}
 	h := st.Hypotheses[0]
 	if h.Tested < 19 || h.Rejected.Rate < 0.95 || h.Low == nil || h.Estimated != h.Tested {
 		t.Fatalf("hypothesis: %+v", h)
