@@ -51,6 +51,16 @@ func TestStabilityReadingNearMargin(t *testing.T) {
 	if strings.Contains(got, "fragile") {
 		t.Errorf("near the margin: the reading still calls the choice fragile:\n%s", got)
 	}
+	if strings.Contains(got, "takes the rows as independent") {
+		t.Errorf("near the margin, rows resampled: the reading speaks of clusters:\n%s", got)
+	}
+	// Whole clusters resampled: the approximation is said to take the
+	// rows as independent.
+	st.Unit, st.Units = runner.UnitClusters, 7
+	got = stabilityReading(or, st, pm, st.Models[1])
+	if !strings.Contains(got, "beyond the critical value 40.113 (an approximation that takes the rows as independent: with whole clusters drawn, 7 of them here,") {
+		t.Errorf("near the margin, clusters resampled: the reading lacks the caveat:\n%s", got)
+	}
 
 	for name, c := range map[string]struct {
 		kind string
