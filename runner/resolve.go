@@ -854,7 +854,7 @@ func (r Reading) lossKeys(dc []data.DropCount) []string {
 	for _, c := range dc {
 		if c.Rows > 0 && c.Subset {
 			for _, k := range r.Options.Keep {
-				if k.Column == c.Column {
+				if k.DropColumn() == c.Column {
 					add(k.Key)
 				}
 			}

@@ -3,10 +3,12 @@ package runner
 import (
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
 	"ordplan/plan"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 
@@ -55,5 +57,23 @@ func TestClusteredPhraseNamesColumnAndG(t *testing.T) {
 	}
 	if s := (CovariancePolicy{Covariance: fit.Sandwich}).Phrase("", 0); strings.Contains(s, "clusters") {
 		t.Errorf("sandwich phrase %q names clusters", s)
+	}
+}
+
+// TestLossKeys: the plan keys a refusal names for the rows dropped are
+// the subset's conditions that left rows out, data.missing for rows
+// missing a value and data.weights for rows of weight 0, in that order,
+// each once; a count of no rows names nothing.
+func TestLossKeys(t *testing.T) {
+	c0 := data.Condition{Column: "x", Op: ">", Number: 1.5, Key: "subset[0]"}
+	c1 := data.Condition{Column: "g", Op: "in", Values: []string{"a"}, Key: "subset[1]"}
+	r := Reading{Options: data.Options{Keep: []data.Condition{c0, c1}, Weights: "w"}}
+	got := r.lossKeys([]data.DropCount{{Column: "w = 0", Rows: 2}, {Column: "z", Rows: 5}, {Column: "y", Rows: 1},
+		{Column: c1.DropColumn(), Rows: 3, Subset: true}, {Column: c0.DropColumn(), Rows: 0, Subset: true}})
+	if want := []string{"subset[1]", "data.missing", "data.weights"}; !slices.Equal(got, want) {
+		t.Errorf("lossKeys: %q, want %q", got, want)
+	}
+	if got := r.lossKeys(nil); got != nil {
+		t.Errorf("no rows dropped: %q", got)
 	}
 }

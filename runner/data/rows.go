@@ -852,7 +852,7 @@ func (r *reader) countDrops(t *rowTally, d *Dataset) error {
 	}
 	for i, n := range t.subsetDrops {
 		if n > 0 {
-			d.Dropped = append(d.Dropped, DropCount{Column: "outside the subset " + opt.Keep[i].String(), Rows: n, Subset: true})
+			d.Dropped = append(d.Dropped, DropCount{Column: opt.Keep[i].DropColumn(), Rows: n, Subset: true})
 			d.RowsDropped += n
 			d.RowsOutside += n
 		}
@@ -908,7 +908,7 @@ func (r *reader) noneKept(d *Dataset, subset bool) error {
 		first := ""
 		for _, c := range opt.Keep {
 			if first == "" && slices.ContainsFunc(d.Dropped, func(dc DropCount) bool {
-				return dc.Subset && dc.Rows > 0 && dc.Column == "outside the subset "+c.String()
+				return dc.Subset && dc.Rows > 0 && dc.Column == c.DropColumn()
 			}) {
 				first = c.Column
 			}

@@ -22,6 +22,10 @@ type Condition struct {
 	Key    string   `json:"key"` // where the plan states it, for reports
 }
 
+// DropColumn is what the count of the rows the condition leaves out
+// names (DropCount.Column): "outside the subset age >= 18".
+func (c Condition) DropColumn() string { return "outside the subset " + c.String() }
+
 // String renders the condition for reports, e.g. `age >= 18` or
 // `site in {north, east}`.
 func (c Condition) String() string {
