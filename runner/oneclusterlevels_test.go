@@ -25,9 +25,10 @@ func TestOneClusterLevels(t *testing.T) {
 	if !strings.HasPrefix(got, `the rows of site = B (cluster "k2"), site = C (cluster "k3") lie in one cluster each`) || strings.Contains(got, "site = A") || strings.Contains(got, "s = ") {
 		t.Errorf("got %q", got)
 	}
-	// Level B met in a second cluster: only C is named.
+	// Level B met in a second cluster: only C is named (one level: "lie in
+	// one cluster", not "each").
 	ds.Cluster[2] = "k1"
-	if got := oneClusterLevels(r, ds); !strings.HasPrefix(got, `the rows of site = C (cluster "k3") lie`) {
+	if got := oneClusterLevels(r, ds); !strings.HasPrefix(got, `the rows of site = C (cluster "k3") lie in one cluster (a cluster's own`) {
 		t.Errorf("B in two clusters: %q", got)
 	}
 	// With B the reference, A (rows 1 and 6, both in k1) and C are named;

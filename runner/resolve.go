@@ -601,8 +601,12 @@ func oneClusterLevels(r Reading, ds *data.Dataset) string {
 	if len(found) == 0 {
 		return ""
 	}
-	return fmt.Sprintf("the rows of %s lie in one cluster each (a cluster's own fixed effect, or a level met in one cluster): the score of such a level's column sums to 0 over its rows at the maximum, so its sum in each cluster is 0 and the cluster-robust standard errors, tests and intervals of its effects have nothing to rest on: the outputs show them as not available (n/a), with the reason; read its estimates only, or give it errors that do not cluster by this column",
-		words.Some(found, 3))
+	each := " each"
+	if len(found) == 1 {
+		each = ""
+	}
+	return fmt.Sprintf("the rows of %s lie in one cluster%s (a cluster's own fixed effect, or a level met in one cluster): the score of such a level's column sums to 0 over its rows at the maximum, so its sum in each cluster is 0 and the cluster-robust standard errors, tests and intervals of its effects have nothing to rest on: the outputs show them as not available (n/a), with the reason; read its estimates only, or give it errors that do not cluster by this column",
+		words.Some(found, 3), each)
 }
 
 // levelsInOneCluster finds the levels of the categorical predictors of r
