@@ -91,16 +91,17 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 // notEstimableEffects says, above a table of marginal effects some of
 // whose errors are not available because the chosen model's cluster-robust
 // covariance cannot estimate some of its parameters (fit.NotEstimable), why
-// those cells are n/a: an average runs over the rows of every cluster, so
-// it rests on each cluster's own effect even for a predictor whose own
-// estimate has a standard error.
+// those cells are n/a: an average runs over every row used, the rows of a
+// level met in one cluster or of a cluster's own effect among them, so it
+// rests on those parameters even for a predictor whose own estimate has a
+// standard error.
 func notEstimableEffects(d *doc, or *runner.OutcomeResult, set runner.MarginalSet) {
 	res := or.Chosen.Result
 	if res == nil || res.NotEstimable == nil || !slices.ContainsFunc(set.Effects, func(me fit.MarginalEffect) bool { return math.IsNaN(me.SE) }) {
 		return
 	}
 	if set.Kind == "average" {
-		d.p("The effects marked n/a have no standard error, test or interval because they depend on parameters of %s whose clustered standard errors are not estimable (see the warning under the chosen model): an average runs over the rows of every cluster, each with its own effect, so it rests on those parameters even for a predictor whose own estimate has a standard error. The effects themselves stand.", or.Chosen.ID)
+		d.p("The effects marked n/a have no standard error, test or interval because they depend on parameters of %s whose clustered standard errors are not estimable (see the warning under the chosen model): an average runs over every row used, the rows those parameters describe (a level met in one cluster, a cluster's own effect) among them, so it rests on those parameters even for a predictor whose own estimate has a standard error. The effects themselves stand.", or.Chosen.ID)
 		return
 	}
 	d.p("The effects marked n/a have no standard error, test or interval because at this point they depend on parameters of %s whose clustered standard errors are not estimable (see the warning under the chosen model). The effects themselves stand.", or.Chosen.ID)

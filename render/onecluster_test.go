@@ -74,7 +74,7 @@ func TestNotEstimableReadsOnce(t *testing.T) {
 		"| Wald (all predictors) |  |  | not computed (clustered errors, see below) |",
 		"| site | (alone) | not computed (clustered errors, see below) |",
 		"\n\nNot computed (clustered errors): the standard errors of tau[1], tau[2], tau[3], site.b",
-		"The effects marked n/a have no standard error, test or interval because they depend on parameters of cumulative/parallel/logit whose clustered standard errors are not estimable (see the warning under the chosen model): an average runs over the rows of every cluster",
+		"The effects marked n/a have no standard error, test or interval because they depend on parameters of cumulative/parallel/logit whose clustered standard errors are not estimable (see the warning under the chosen model): an average runs over every row used, the rows those parameters describe (a level met in one cluster, a cluster's own effect) among them",
 		"The effects marked n/a have no standard error, test or interval because at this point they depend on parameters of cumulative/parallel/logit",
 		"An error shown as n/a is not available: at that point the prediction depends on parameters of cumulative/parallel/logit")
 	for _, line := range strings.Split(md, "\n") {
