@@ -727,12 +727,18 @@ func (a *Analysis) CheckDesign(r Reading, dz *design.Design, ds *data.Dataset, d
 // someCandidateFits refuses a plan none of whose candidate models can be
 // fitted on d because each has more parameters than observations
 // (fit.TooFewObservations, the refusal each fit would make), naming the
-// candidate with the fewest; nil when one can, or when the plan lists
-// none before its fits (a partial set selected stepwise: gridModels).
-// Such a run has nothing to choose from, as when a term is constant for
-// every model, so it is refused before any fit rather than reported with
-// every candidate not fitted.
+// candidate with the fewest; nil when one can, or when some candidates
+// are known only after fits (partial or constrained models of a partial
+// set selected stepwise, which gridModels leaves out). Such a run has
+// nothing to choose from, as when a term is constant for every model, so
+// it is refused before any fit rather than reported with every candidate
+// not fitted.
 func (a *Analysis) someCandidateFits(dz *design.Design, d *fit.Data) error {
+	if a.Models.Partial.Select != nil && slices.ContainsFunc(a.Models.Effects, func(s fit.Structure) bool {
+		return s == fit.PartialEffects || s == fit.ConstrainedEffects
+	}) {
+		return nil
+	}
 	var fewest error
 	least := -1
 	for _, e := range gridModels(a, termsOf(dz)) {

@@ -2089,6 +2089,15 @@ func catalogue(dir string) (items []badInput) {
 							t.Errorf("%s on %d rows: exit %d:\n%s\nwant refused: %v, with %q", args[0], kept, code, e, extra == 0, want)
 						}
 					}
+					if extra == 0 {
+						// With a partial set selected stepwise its models are
+						// known only after fits: judged model by model, as
+						// before (no model chosen, exit 3).
+						os.WriteFile(pl, []byte(edit("file: d.csv", "file: M3loss.csv", "[a, b]", "[a, z]", "effects: [parallel, nonparallel]", "effects: [parallel, partial]\n  partial: {select: {method: stepwise, alpha: 0.05, test: wald}}")), 0o644)
+						if _, e, code := runCLI("run", pl, "--out", filepath.Join(dir, "M3step-out"), "--quiet"); code != exitNoChoice || strings.Contains(e, "no candidate model") {
+							t.Errorf("stepwise partial set on 3 rows: exit %d:\n%s", code, e)
+						}
+					}
 					if extra > 0 {
 						rep, err := os.ReadFile(filepath.Join(dir, "M3loss-out", "report.md"))
 						if err != nil || !strings.Contains(string(rep), "not fitted: model cumulative/nonparallel/logit has 6 parameters but only 5 observations") || strings.Contains(string(rep), "not fitted: model cumulative/parallel/logit") {
