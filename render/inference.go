@@ -139,8 +139,40 @@ func writeNewRows(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		d.p("On imputed data each number was predicted on each of the %d imputed sets by that set's fit and pooled by Rubin's rules: the prediction is the mean over the sets, its standard error the square root of the mean squared delta-method error plus (1 + 1/%d) times the variance between the sets, and each standard error is followed by its Barnard-Rubin degrees of freedom (`df_...`, inf when the sets agree) ; the intervals use t on them. The most likely category is that of the pooled probabilities; a row is flagged negative when a pooled probability or any set's is.",
 			or.Imputed.M, or.Imputed.M)
 	}
+	writeNewRowsNotEstimable(d, or)
 	writeNotPredicted(d, or)
 	writeNewRowsOutside(d, or)
+}
+
+// writeNewRowsNotEstimable names the new rows whose predictions have no
+// standard error or interval (empty cells of the predictions file)
+// because at their values the prediction depends on parameters of the
+// chosen model whose clustered standard errors are not estimable
+// (fit.NotEstimable), as a level met in one cluster.
+func writeNewRowsNotEstimable(d *doc, or *runner.OutcomeResult) {
+	nr := or.NewRows
+	if or.Chosen == nil || or.Chosen.Result == nil || or.Chosen.Result.NotEstimable == nil || nr.Pred == nil || nr.Rows == nil {
+		return
+	}
+	J := len(or.Data.Categories)
+	var lines []string
+	for i := range nr.Rows.Lines {
+		if !nr.Predicted(i) || (i+1)*J > len(nr.Pred.SE) {
+			continue
+		}
+		if slices.ContainsFunc(nr.Pred.SE[i*J:(i+1)*J], math.IsNaN) {
+			lines = append(lines, strconv.Itoa(nr.Rows.Lines[i]))
+		}
+	}
+	if len(lines) == 0 {
+		return
+	}
+	which := "line " + words.Some(lines, newRowsListed)
+	if len(lines) > 1 {
+		which = "lines " + words.Some(lines, newRowsListed)
+	}
+	d.p("%s of the %d rows (%s of the file) %s no standard error or interval (empty cells in `%s`): at %s values the prediction depends on parameters of %s whose clustered standard errors are not estimable (see the warning under the chosen model); the predictions themselves stand.",
+		strconv.Itoa(len(lines)), nr.Rows.N, which, sing(len(lines) == 1, "has", "have"), predictionsFile(or), sing(len(lines) == 1, "its", "their"), or.Chosen.ID)
 }
 
 // writeNotPredicted says which new rows are not predicted because a term

@@ -159,3 +159,22 @@ func TestPooledNotEstimableTable(t *testing.T) {
 		t.Errorf("%d rows of the pooling table read, want 11 (3 thresholds, x, the 7 sites other than the reference)", rows)
 	}
 }
+
+// TestNewRowsNotEstimable: the predictions of new rows that depend on
+// parameters whose clustered standard errors are not estimable (here
+// the thresholds and every site, each site one cluster) have empty
+// errors and intervals in the predictions file, and the report says which
+// lines and why, once.
+func TestNewRowsNotEstimable(t *testing.T) {
+	dir := t.TempDir()
+	siteData(t, dir, 0)
+	if err := os.WriteFile(filepath.Join(dir, "new.csv"), []byte("x,site\n0.5,a\n-1,c\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := renderSource(t, dir, strings.Replace(sitePlan, "  marginal_effects: [average, means]\n", "  marginal_effects: [average]\n  predict: new.csv\n", 1), 1)
+	md := string(out["report.md"])
+	hasAll(t, "report.md", md, "2 of the 2 rows (lines 2, 3 of the file) have no standard error or interval (empty cells in `predictions-y.csv`): at their values the prediction depends on parameters of cumulative/parallel/logit whose clustered standard errors are not estimable")
+	if _, ok := out["predictions-y.csv"]; !ok {
+		t.Fatal("no predictions-y.csv")
+	}
+}
