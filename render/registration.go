@@ -2,6 +2,7 @@ package render
 
 import (
 	"fmt"
+	"slices"
 
 	"ordplan/internal/words"
 	"ordplan/plan/lock"
@@ -70,7 +71,7 @@ func writeLockStatus(d *doc, st *lock.Status, version string, w lockWords, earli
 		return
 	}
 	defer func() {
-		writeReplacedLocks(d, st, w, w.folder && len(underEarlier) > 0)
+		writeReplacedLocks(d, st, w, w.folder && slices.ContainsFunc(underEarlier, func(e runner.EarlierLockRun) bool { return !e.Unregistered() }))
 		if w.folder {
 			writeUnderEarlierLocks(d, st, underEarlier)
 		}
@@ -235,28 +236,38 @@ func writeEarlierRegistered(d *doc, earlier []runner.EarlierRun) {
 }
 
 // writeUnderEarlierLocks names the runs the output folder held that were
-// made under another lock of the plan than its lock now: a lock that
-// freeze --replace replaced, or one since removed. Their results existed
-// before the plan was frozen anew, so they are not runs of the registered
-// plan, and a reader weighing the new lock needs to know of them. Each is
-// named by the SHA-256 of its decisions.json, with the lock it was run
-// under (canonical hash and time, from its run.json), apart from the runs
-// under the lock now (writeEarlierRegistered).
+// made under another registration of the plan than its lock now
+// (runner.EarlierLockRuns): first those made while the plan had no lock,
+// whose results existed before it was registered, then those made under
+// a lock that freeze --replace replaced, or one since removed, whose
+// results existed before the plan was frozen anew. Neither are runs of
+// the registered plan, and a reader weighing the registration needs to
+// know of them. Each is named by the SHA-256 of its decisions.json, with
+// the registration its run.json records, apart from the runs under the
+// lock now (writeEarlierRegistered).
 func writeUnderEarlierLocks(d *doc, st *lock.Status, runs []runner.EarlierLockRun) {
-	if len(runs) == 0 {
-		return
-	}
-	items := make([]string, len(runs))
-	same := 0
-	for i, e := range runs {
-		under := fmt.Sprintf("under the lock frozen at %s, canonical sha256 `%s`", e.LockFrozenAt, e.LockSHA256)
+	var before, under []string
+	sameBefore, sameUnder := 0, 0
+	for _, e := range runs {
+		if e.Unregistered() {
+			when := "its run.json records no time (the plan did not ask for timestamps), so it was run before the plan was first frozen or while its lock was missing"
+			if e.BeforeFirstLock != nil {
+				when = "before the plan was first frozen"
+				if !*e.BeforeFirstLock {
+					when = "after the plan was first frozen, while its lock was missing"
+				}
+			}
+			before = append(before, fmt.Sprintf("%s; with no lock file, %s", earlierRunItem(e.EarlierRun, &sameBefore), when))
+			continue
+		}
+		at := fmt.Sprintf("under the lock frozen at %s, canonical sha256 `%s`", e.LockFrozenAt, e.LockSHA256)
 		if e.LockRegistration != "" {
-			under += ", registration " + e.LockRegistration
+			at += ", registration " + e.LockRegistration
 		}
 		if e.KeptAs != "" {
-			under += ", kept as " + mdCode(e.KeptAs)
+			at += ", kept as " + mdCode(e.KeptAs)
 		} else {
-			under += ", a lock no longer kept beside the plan"
+			at += ", a lock no longer kept beside the plan"
 		}
 		how := "the plan then matched it"
 		switch e.State {
@@ -265,9 +276,18 @@ func writeUnderEarlierLocks(d *doc, st *lock.Status, runs []runner.EarlierLockRu
 		case lock.StateUnexplained:
 			how = "the plan then departed from it with changes forced by `--allow-unregistered-changes`"
 		}
-		items[i] = fmt.Sprintf("%s; %s; %s", earlierRunItem(e.EarlierRun, &same), under, how)
+		under = append(under, fmt.Sprintf("%s; %s; %s", earlierRunItem(e.EarlierRun, &sameUnder), at, how))
 	}
-	lead, one := heldRuns(len(runs), same, "made under an earlier lock of this plan")
+	if len(before) > 0 {
+		lead, one := heldRuns(len(before), sameBefore, "made before this plan was registered")
+		d.p("%s: %s existed before the plan was registered as it is now (%s, frozen at %s), so the registered plan may have been written after seeing them: its lock does not show that the analysis was fixed before these results were seen. %s of the registered plan. %s named by the SHA-256 of %s decisions.json (in this folder's run.json or under earlier/):",
+			lead, sing(one, "its results", "their results"), mdCode(st.LockFile), st.Lock.FrozenAt, sing(one, "It is not a run", "They are not runs"), sing(one, "It is", "They are"), sing(one, "its", "their"))
+		d.list(before)
+	}
+	if len(under) == 0 {
+		return
+	}
+	lead, one := heldRuns(len(under), sameUnder, "made under an earlier lock of this plan")
 	its := sing(one, "its results", "their results")
 	var since string
 	if st.State == lock.StateNone {
@@ -276,7 +296,7 @@ func writeUnderEarlierLocks(d *doc, st *lock.Status, runs []runner.EarlierLockRu
 		since = fmt.Sprintf("%s existed before the plan was frozen anew as %s, so the changes made in freezing it anew may have been chosen after seeing them. %s of the registered plan, which counts only from the time of %s", its, mdCode(st.LockFile), sing(one, "It is not a run", "They are not runs"), mdCode(st.LockFile))
 	}
 	d.p("%s: %s. %s named by the SHA-256 of %s decisions.json (in this folder's run.json or under earlier/), %s the lock its run.json records:", lead, since, sing(one, "It is", "They are"), sing(one, "its", "their"), sing(one, "with", "each with"))
-	d.list(items)
+	d.list(under)
 }
 
 // earlierRunItem names an earlier run of the output folder by its
@@ -288,5 +308,9 @@ func earlierRunItem(e runner.EarlierRun, same *int) string {
 		data = "on the same data"
 		*same++
 	}
-	return fmt.Sprintf("decisions.json sha256 `%s`, %s", short(e.DecisionsSHA256), data)
+	s := fmt.Sprintf("decisions.json sha256 `%s`, %s", short(e.DecisionsSHA256), data)
+	if e.Time != "" {
+		s += ", run at " + e.Time
+	}
+	return s
 }

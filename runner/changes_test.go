@@ -316,3 +316,35 @@ func TestChangesOfRegistration(t *testing.T) {
 		t.Errorf("ChangesFrom: %q", lines)
 	}
 }
+
+// EarlierLockRuns lists, when the plan has a lock, the folder's runs made
+// with none: before the plan was first frozen (the earliest of its lock
+// and the kept locks) or after, while its lock was missing, when their
+// run.json records a time; with no time recorded, neither is claimed.
+// With no lock now, runs without one are not listed.
+func TestEarlierLockRunsBeforeRegistration(t *testing.T) {
+	rec := func(dec, at string) RunRecord {
+		return RunRecord{MadeBy: "run", Timestamp: at, Data: &DataRef{SHA256: "d1"}, Outputs: map[string]string{"decisions.json": dec},
+			Registration: &RegistrationRecord{State: lock.StateNone, LockFile: "p.lock.json"}}
+	}
+	records := []RunRecord{rec("c", "2026-12-01T08:59:59Z"), rec("b", "2026-12-01T10:00:00Z"), rec("a", ""),
+		{MadeBy: "rehearse", Outputs: map[string]string{"decisions.json": "e"}, Registration: &RegistrationRecord{State: lock.StateNone}}}
+	st := &lock.Status{State: lock.StateMatches, LockFile: "p.lock.json", Lock: &lock.File{SHA256: "bbbb", FrozenAt: "2026-12-02T09:00:00Z"},
+		Replaced: []lock.Replaced{{File: "p.lock.json.replaced-20261201T090000Z", FrozenAt: "2026-12-01T09:00:00Z", SHA256: "aaaa"}}}
+	got := EarlierLockRuns(st, "d1", records)
+	var desc []string
+	for _, r := range got {
+		s := r.DecisionsSHA256 + " " + r.State + fmt.Sprint(" same=", r.SameData)
+		if r.BeforeFirstLock != nil {
+			s += fmt.Sprint(" before=", *r.BeforeFirstLock)
+		}
+		desc = append(desc, s)
+	}
+	want := "a none same=true; b none same=true before=false; c none same=true before=true"
+	if g := strings.Join(desc, "; "); g != want {
+		t.Errorf("got %s, want %s", g, want)
+	}
+	if got := EarlierLockRuns(&lock.Status{State: lock.StateNone, LockFile: "p.lock.json"}, "d1", records); len(got) != 0 {
+		t.Errorf("with no lock now, runs without one are listed: %+v", got)
+	}
+}

@@ -29,7 +29,8 @@ type RegistrationRecord struct {
 	EarlierRegistered []EarlierRun `json:"earlier_registered_runs,omitempty"`
 	// UnderEarlierLocks: the earlier runs in the output folder made under
 	// another lock of the plan than its lock now (one freeze --replace
-	// replaced, or one removed).
+	// replaced, or one removed), and, when the plan has a lock, those made
+	// while it had none (state "none": before it was registered).
 	UnderEarlierLocks []EarlierLockRun `json:"runs_under_earlier_locks,omitempty"`
 }
 
@@ -41,6 +42,9 @@ type EarlierRun struct {
 	DecisionsSHA256 string `json:"decisions_sha256"`
 	DataSHA256      string `json:"data_sha256"`
 	SameData        bool   `json:"same_data"`
+	// Time is when the run started, as its run.json records it (only
+	// when its plan asked for timestamps).
+	Time string `json:"time,omitempty"`
 }
 
 // EarlierRegisteredRuns picks, from the run records an output folder
@@ -73,7 +77,7 @@ func earlierRun(rec RunRecord, dataHash string) (EarlierRun, bool) {
 	if rec.MadeBy != "" && rec.MadeBy != "run" || dec == "" {
 		return EarlierRun{}, false
 	}
-	e := EarlierRun{DecisionsSHA256: dec}
+	e := EarlierRun{DecisionsSHA256: dec, Time: rec.Timestamp}
 	if rec.Data != nil {
 		e.DataSHA256 = rec.Data.SHA256
 		e.SameData = rec.Data.SHA256 == dataHash
@@ -81,47 +85,75 @@ func earlierRun(rec RunRecord, dataHash string) (EarlierRun, bool) {
 	return e, true
 }
 
-// EarlierLockRun is an earlier run in the output folder made under a lock
-// of the plan other than its lock now: its results existed before the
-// plan was frozen anew (or before its lock was removed), so it is not a
-// run of the registered plan, and a reader needs it named with the lock
-// it was run under.
+// EarlierLockRun is an earlier run in the output folder made under
+// another registration of the plan than its lock now: under a lock of
+// the plan since replaced or removed, or, when the plan has a lock, with
+// no lock at all (State "none": made before the plan was registered, or
+// while its lock was missing). Its results existed before the plan was
+// frozen as it is now, so it is not a run of the registered plan, and a
+// reader needs it named with the registration it was run under.
 type EarlierLockRun struct {
 	EarlierRun
-	// The lock the run was compared with, as its run.json recorded it.
-	LockFile         string `json:"lock_file"`
-	LockSHA256       string `json:"lock_canonical_sha256"`
-	LockFrozenAt     string `json:"lock_frozen_at"`
+	// The lock the run was compared with, as its run.json recorded it
+	// (absent for a run made with no lock).
+	LockFile         string `json:"lock_file,omitempty"`
+	LockSHA256       string `json:"lock_canonical_sha256,omitempty"`
+	LockFrozenAt     string `json:"lock_frozen_at,omitempty"`
 	LockRegistration string `json:"lock_registration,omitempty"`
 	// KeptAs is the file freeze --replace kept that lock in (its
 	// canonical hash the same); "" when no kept lock beside the plan has it.
 	KeptAs string `json:"lock_kept_as,omitempty"`
 	// State is how that run's plan stood against that lock: matches,
-	// deviations or unexplained.
+	// deviations or unexplained; none when the plan had no lock.
 	State string `json:"state"`
+	// BeforeFirstLock, for a run made with no lock whose run.json records
+	// its time: whether it started before the plan was first frozen (the
+	// earliest of its lock and the locks kept beside it), or while its
+	// lock was missing later. Absent when the time is not recorded.
+	BeforeFirstLock *bool `json:"before_first_lock,omitempty"`
 }
 
+// Unregistered is true for a run made while the plan had no lock.
+func (e EarlierLockRun) Unregistered() bool { return e.State == lock.StateNone }
+
 // EarlierLockRuns picks, from the run records an output folder holds,
-// the runs made (by run) under a lock of the plan other than st's lock:
-// a lock freeze --replace replaced, or one since removed. dataHash is
-// this run's data. Sorted by the time their lock was frozen, then by
-// their decisions' hash, each run once.
+// the runs made (by run) under another registration of the plan than
+// st's: under a lock freeze --replace replaced or one since removed,
+// and, when st has a lock, with no lock at all (before the plan was
+// registered). dataHash is this run's data. The runs without a lock
+// first, then by the time their lock was frozen, then by their
+// decisions' hash, each run once.
 func EarlierLockRuns(st *lock.Status, dataHash string, records []RunRecord) []EarlierLockRun {
 	if st == nil {
 		return nil
 	}
-	now := ""
+	now, first := "", ""
 	if st.Lock != nil {
-		now = st.Lock.SHA256
+		now, first = st.Lock.SHA256, st.Lock.FrozenAt
+	}
+	for _, k := range st.Replaced {
+		if k.Error == "" && k.FrozenAt != "" && (first == "" || k.FrozenAt < first) {
+			first = k.FrozenAt
+		}
 	}
 	var out []EarlierLockRun
 	for _, rec := range records {
 		g := rec.Registration
-		if g == nil || g.State == lock.StateNone || g.CanonicalSHA256 == "" || g.CanonicalSHA256 == now {
+		unregistered := g != nil && g.State == lock.StateNone && now != ""
+		if g == nil || !unregistered && (g.State == lock.StateNone || g.CanonicalSHA256 == "" || g.CanonicalSHA256 == now) {
 			continue
 		}
 		e, ok := earlierRun(rec, dataHash)
 		if !ok || slices.ContainsFunc(out, func(o EarlierLockRun) bool { return o.DecisionsSHA256 == e.DecisionsSHA256 }) {
+			continue
+		}
+		if unregistered {
+			r := EarlierLockRun{EarlierRun: e, State: lock.StateNone}
+			if e.Time != "" {
+				before := e.Time < first // both RFC 3339 times in UTC
+				r.BeforeFirstLock = &before
+			}
+			out = append(out, r)
 			continue
 		}
 		r := EarlierLockRun{EarlierRun: e, LockFile: g.LockFile, LockSHA256: g.CanonicalSHA256, LockFrozenAt: g.FrozenAt,
@@ -135,6 +167,12 @@ func EarlierLockRuns(st *lock.Status, dataHash string, records []RunRecord) []Ea
 		out = append(out, r)
 	}
 	slices.SortFunc(out, func(a, b EarlierLockRun) int {
+		if a.Unregistered() != b.Unregistered() {
+			if a.Unregistered() {
+				return -1
+			}
+			return 1
+		}
 		if c := strings.Compare(a.LockFrozenAt, b.LockFrozenAt); c != 0 {
 			return c
 		}

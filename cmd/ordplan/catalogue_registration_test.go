@@ -85,6 +85,27 @@ func registrationItems(dir string) []badInput {
 					t.Errorf("check without the lock: exit %d\n%s%s", code, o, e)
 				}
 			}},
+		{id: "R17", name: "run: a plan frozen after runs of it were made in its output folder", args: []string{"run"}, plan: goodPlan, code: 0,
+			setup: func(t *testing.T, dir, id string) {
+				p := filepath.Join(dir, id+".yaml")
+				os.Remove(lock.PathFor(p))
+				os.WriteFile(p, []byte(goodPlan), 0o644)
+				if o, e, code := runCLI("run", p, "--out", filepath.Join(dir, id+"-out"), "--quiet"); code != 0 {
+					t.Fatalf("run before freezing: exit %d\n%s%s", code, o, e)
+				}
+				freezeAs(t, dir, id, goodPlan)
+			},
+			want: []string{"registered plan: matches R17.lock.json (frozen 2026-12-01T09:00:00Z)\n" +
+				"note: the output folder held 1 run made when the plan had no lock file: its results existed before the plan was registered as it is now (R17.lock.json, frozen 2026-12-01T09:00:00Z), so the plan may have been written after seeing them, and it is not a run of the registered plan; the report lists it\n"},
+			check: func(t *testing.T, dir, out, errs string) {
+				b, _ := os.ReadFile(filepath.Join(dir, "R17-out", "report.md"))
+				for _, w := range []string{"**This output folder already held 1 run made before this plan was registered**, on the same data as this run: its results existed before",
+					"on the same data; with no lock file, its run.json records no time"} {
+					if !strings.Contains(string(b), w) {
+						t.Errorf("report.md lacks %q:\n%s", w, b)
+					}
+				}
+			}},
 		{id: "R2", name: "lock file edited by hand", args: []string{"check"}, plan: goodPlan, code: 1,
 			setup: func(t *testing.T, dir, id string) {
 				lp := freezeAs(t, dir, id, goodPlan)

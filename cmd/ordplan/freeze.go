@@ -129,15 +129,20 @@ func printRegistration(w io.Writer, st *lock.Status, changes bool) {
 	}
 }
 
-// earlierLocksNote says, after run's registration lines, that the output
-// folder held runs made under another lock of the plan than its lock now
-// (runner.EarlierLockRuns), which the report lists: "" when it held none.
-func earlierLocksNote(st *lock.Status, runs []runner.EarlierLockRun) string {
-	if len(runs) == 0 {
-		return ""
-	}
+// earlierLocksNotes say, after run's registration lines, that the output
+// folder held runs made with no lock (before the plan was registered) or
+// under another lock of the plan than its lock now
+// (runner.EarlierLockRuns), which the report lists: none when it held
+// none.
+func earlierLocksNotes(st *lock.Status, runs []runner.EarlierLockRun) []string {
 	var locks []string
+	before, under := 0, 0
 	for _, r := range runs {
+		if r.Unregistered() {
+			before++
+			continue
+		}
+		under++
 		l := "frozen " + r.LockFrozenAt
 		if r.KeptAs != "" {
 			l += ", kept as " + r.KeptAs
@@ -149,16 +154,28 @@ func earlierLocksNote(st *lock.Status, runs []runner.EarlierLockRun) string {
 		}
 	}
 	// One run in the singular, several in the plural.
-	their, notRuns, them := "their results", "they are not runs", "them"
-	if len(runs) == 1 {
-		their, notRuns, them = "its results", "it is not a run", "it"
+	forms := func(n int) (their, notRuns, them string) {
+		if n == 1 {
+			return "its results", "it is not a run", "it"
+		}
+		return "their results", "they are not runs", "them"
 	}
-	since := "before the plan was frozen anew, and " + notRuns + " of the registered plan, which counts only from " + st.LockFile + "'s time"
-	if st.State == lock.StateNone {
-		since = "before the plan's lock (" + st.LockFile + ") was removed"
+	var notes []string
+	if before > 0 {
+		their, notRuns, them := forms(before)
+		notes = append(notes, fmt.Sprintf("the output folder held %s made when the plan had no lock file: %s existed before the plan was registered as it is now (%s, frozen %s), so the plan may have been written after seeing them, and %s of the registered plan; the report lists %s",
+			words.Count(before, "run", "runs"), their, st.LockFile, st.Lock.FrozenAt, notRuns, them))
 	}
-	return fmt.Sprintf("the output folder held %s made under an earlier lock of this plan (%s): %s existed %s; the report lists %s",
-		words.Count(len(runs), "run", "runs"), strings.Join(locks, "; "), their, since, them)
+	if under > 0 {
+		their, notRuns, them := forms(under)
+		since := "before the plan was frozen anew, and " + notRuns + " of the registered plan, which counts only from " + st.LockFile + "'s time"
+		if st.State == lock.StateNone {
+			since = "before the plan's lock (" + st.LockFile + ") was removed"
+		}
+		notes = append(notes, fmt.Sprintf("the output folder held %s made under an earlier lock of this plan (%s): %s existed %s; the report lists %s",
+			words.Count(under, "run", "runs"), strings.Join(locks, "; "), their, since, them))
+	}
+	return notes
 }
 
 // registrationLine is the one-line summary check and run print.

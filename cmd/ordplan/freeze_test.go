@@ -231,3 +231,61 @@ func jsonField(t *testing.T, b []byte, key string) string {
 	}
 	return s
 }
+
+// Runs made before the plan was frozen (their run.json records no lock)
+// are listed, once the plan is frozen, through the same list as the runs
+// under an earlier lock: run notes them, the report says their results
+// predate the registration, with their decisions.json's SHA-256 and
+// whether they read the same data, and decisions.json has them (state
+// none) under registration.runs_under_earlier_locks.
+func TestRunsBeforeRegistrationListed(t *testing.T) {
+	dir, planPath, _ := deviationStudy(t)
+	o := filepath.Join(dir, "out")
+	run := func() (string, string, string) {
+		out, errs, code := runCLI("run", planPath, "--out", o, "--quiet")
+		if code != 0 {
+			t.Fatalf("run: %d %s %s", code, out, errs)
+		}
+		md, _ := os.ReadFile(filepath.Join(o, "report.md"))
+		dec, _ := os.ReadFile(filepath.Join(o, "decisions.json"))
+		return out, string(md), string(dec)
+	}
+	_, md, unregistered := run()
+	if strings.Contains(md, "before this plan was registered") {
+		t.Errorf("a run with no lock lists runs before the registration:\n%s", md)
+	}
+	sum := sha256.Sum256([]byte(unregistered))
+	decHash := hex.EncodeToString(sum[:])
+	if out, errs, code := runCLI("freeze", planPath); code != 0 {
+		t.Fatalf("freeze: %d %s %s", code, out, errs)
+	}
+	lockFile, _ := os.ReadFile(filepath.Join(dir, "p.lock.json"))
+	at := jsonField(t, lockFile, "frozen_at")
+	out, md, dec := run()
+	note := "note: the output folder held 1 run made when the plan had no lock file: its results existed before the plan was registered as it is now (p.lock.json, frozen " + at + "), so the plan may have been written after seeing them, and it is not a run of the registered plan; the report lists it\n"
+	if !strings.Contains(out, note) {
+		t.Errorf("stdout lacks %q:\n%s", note, out)
+	}
+	for _, s := range []string{
+		"**This output folder already held 1 run made before this plan was registered**, on the same data as this run: its results existed before the plan was registered as it is now (`p.lock.json`, frozen at " + at + "), so the registered plan may have been written after seeing them: its lock does not show that the analysis was fixed before these results were seen. It is not a run of the registered plan. It is named by the SHA-256 of its decisions.json",
+		"- decisions.json sha256 `" + decHash[:12] + "`, on the same data; with no lock file, its run.json records no time",
+	} {
+		if !strings.Contains(md, s) {
+			t.Errorf("report.md lacks %q:\n%s", s, md)
+		}
+	}
+	if strings.Contains(md, "made under an earlier lock") || strings.Contains(md, "Frozen anew") {
+		t.Errorf("a run before the first lock is called a run under an earlier lock:\n%s", md)
+	}
+	for _, s := range []string{`"runs_under_earlier_locks": [`, `"decisions_sha256": "` + decHash + `"`, `"state": "none"`} {
+		if !strings.Contains(dec, s) {
+			t.Errorf("decisions.json lacks %s:\n%.3000s", s, dec)
+		}
+	}
+	if strings.Contains(dec, `"lock_frozen_at"`) {
+		t.Errorf("a run with no lock is given a lock:\n%.3000s", dec)
+	}
+	if _, md2, dec2 := run(); md2 != md || dec2 != dec {
+		t.Error("a rerun changed the report or decisions.json")
+	}
+}

@@ -157,8 +157,9 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	// holds: results that existed before these deviations were run.
 	records := folderRecords(dir)
 	res.EarlierRegistered = runner.EarlierRegisteredRuns(reg, res.DataHash, records)
-	// Runs made under another lock of the plan (one replaced or removed):
-	// results that existed before it was frozen anew.
+	// Runs made under another lock of the plan (one replaced or removed),
+	// or with none before it was frozen: results that existed before the
+	// plan was registered as it is now.
 	res.UnderEarlierLocks = runner.EarlierLockRuns(reg, res.DataHash, records)
 	dec := runner.BuildDecisions(res)
 	var changes []string
@@ -174,7 +175,7 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 		return fail(stderr, err)
 	}
 	printRegistration(stdout, reg, false)
-	if n := earlierLocksNote(reg, res.UnderEarlierLocks); n != "" {
+	for _, n := range earlierLocksNotes(reg, res.UnderEarlierLocks) {
 		fmt.Fprintf(stdout, "note: %s\n", n)
 	}
 	code = exitOK
