@@ -25,7 +25,12 @@
 //     workers send in-progress acknowledgements while they fit, so long
 //     healthy jobs are not delivered twice; a job is delivered at most
 //     MaxDeliver times, and one delivered more than PoisonAfter times is
-//     answered with an error instead of being computed again;
+//     answered with an error instead of being computed again; a worker
+//     stopped on purpose (a second stop signal) gives its unfinished jobs
+//     back by publishing each anew with the count of its earlier
+//     deliveries that counted (headers Ordplan-Deliveries-Counted,
+//     Ordplan-Given-Back) and acknowledging the old message, so a
+//     give-back does not count against these limits;
 //   - the key-value bucket ordplan-results, where a worker stores the reply
 //     to job <index> of batch <batch> under the key <batch>.<index> with a
 //     create-only write, so a second worker's reply is dropped; the bucket

@@ -5,11 +5,15 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"strconv"
 	"sync"
 	"sync/atomic"
 	"time"
 
+	"github.com/nats-io/nats.go"
 	"github.com/nats-io/nats.go/jetstream"
+
+	"ordplan/internal/words"
 )
 
 // Worker pulls jobs from the jobs stream, computes them and stores the
@@ -32,8 +36,8 @@ type Worker struct {
 	DelayKind string
 	// Abort, when it ends, stops the worker at once: the jobs it is
 	// computing (or holding, see Delay) are given back to the server
-	// unacknowledged, for another worker or a later run, and Run returns
-	// an *AbortedError. nil: only ctx stops the worker, which then
+	// (giveBack: queued again, not counted against their delivery limit),
+	// for another worker or a later run, and Run returns an *AbortedError. nil: only ctx stops the worker, which then
 	// finishes the jobs it started.
 	Abort context.Context
 
@@ -49,7 +53,7 @@ type Worker struct {
 // finishing the jobs it had started, and gave them back.
 type AbortedError struct {
 	Name     string
-	GaveBack int // jobs given back unacknowledged
+	GaveBack int // jobs given back (giveBack)
 }
 
 func (e *AbortedError) Error() string {
@@ -57,9 +61,9 @@ func (e *AbortedError) Error() string {
 	switch e.GaveBack {
 	case 0:
 	case 1:
-		what = "it gave back the 1 job it had not finished, unacknowledged: the server delivers it again to another worker (or to this one, started again), and a waiting run gets its result from there"
+		what = "it gave back the 1 job it had not finished: the server delivers it again to another worker (or to this one, started again), not counting this delivery against the job's limit, and a waiting run gets its result from there"
 	default:
-		what = fmt.Sprintf("it gave back the %d jobs it had not finished, unacknowledged: the server delivers them again to another worker (or to this one, started again), and a waiting run gets their results from there", e.GaveBack)
+		what = fmt.Sprintf("it gave back the %d jobs it had not finished: the server delivers them again to another worker (or to this one, started again), not counting these deliveries against the jobs' limit, and a waiting run gets their results from there", e.GaveBack)
 	}
 	return fmt.Sprintf("worker %s: stopped at once, asked a second time; %s", e.Name, what)
 }
@@ -145,14 +149,11 @@ const faultRetryDelay = time.Second
 // times (every worker that took it stopped) is answered with an error
 // instead of being computed again.
 func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
-	var delivered uint64
-	if md, err := msg.Metadata(); err == nil {
-		delivered = md.NumDelivered
-	}
+	delivered, gaveBack := deliveries(msg)
 	if ctx.Err() != nil {
 		// Taken by a fetch that was waiting when the worker was asked to
-		// stop: not started, so given back at once.
-		msg.Nak()
+		// stop: not started, so given back at once, not counted.
+		w.giveBack(msg, delivered, gaveBack)
 		return
 	}
 	t, err := w.Client.openTask(msg.Subject(), msg.Data())
@@ -161,15 +162,19 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 		msg.TermWithReason("job refused: " + err.Error())
 		return
 	}
-	w.logf("worker %s: started %s %s (delivery %d)", w.Name, msg.Subject(), t.jobName(), delivered)
+	back := ""
+	if gaveBack > 0 {
+		back = ", after " + words.Count(gaveBack, "give-back by a stopped worker", "give-backs by stopped workers") + ", not counted"
+	}
+	w.logf("worker %s: started %s %s (delivery %d%s)", w.Name, msg.Subject(), t.jobName(), delivered, back)
 	start := time.Now()
 	stop := w.keepAlive(msg)
 	abort := w.abortContext()
 	giveBack := func() {
 		stop()
-		msg.Nak()
 		w.abandoned.Add(1)
-		w.logf("worker %s: gave back %s %s unfinished (not acknowledged: delivered again to another worker)", w.Name, msg.Subject(), t.jobName())
+		how := w.giveBack(msg, delivered, gaveBack)
+		w.logf("worker %s: gave back %s %s unfinished (%s)", w.Name, msg.Subject(), t.jobName(), how)
 	}
 	if w.Delay > 0 && (w.DelayKind == "" || w.DelayKind == t.Kind) && !w.hold(abort, t) {
 		giveBack()
@@ -181,7 +186,7 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 	var r *Reply
 	if delivered > PoisonAfter {
 		r = &Reply{Batch: t.Batch, Index: t.Index, ID: t.ID, Fault: true, Err: fmt.Sprintf(
-			"%s: the job was delivered %d times and no worker finished it (each one stopped while computing it: out of memory, or killed?); it is not tried again",
+			"%s: the job was delivered %d times and no worker finished it (each one stopped while computing it: out of memory, or killed? a worker stopped on purpose gives its jobs back without counting); it is not tried again",
 			t.ID, delivered)}
 	} else {
 		computed := make(chan *Reply, 1)
@@ -235,6 +240,62 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 	if err := msg.DoubleAck(sctx); err != nil {
 		w.logf("worker %s: %s: acknowledging: %v", w.Name, t.jobName(), err)
 	}
+}
+
+// The headers of a job message published again by a worker that gave it
+// back (giveBack): the deliveries of the job that count before this
+// message, and the give-backs, which do not count. A job first published
+// by the coordinator has neither.
+const (
+	headerCounted  = "Ordplan-Deliveries-Counted"
+	headerGaveBack = "Ordplan-Given-Back"
+)
+
+// deliveries is the count of a job's deliveries that count against
+// PoisonAfter, this one included: the server's delivery count of this
+// message (each earlier delivery of it ended unfinished: a worker killed,
+// a fault, a reply not stored) plus those the message carries from the
+// messages of the job given back before it; and how many times the job
+// was given back by a stopped worker, which does not count.
+func deliveries(msg jetstream.Msg) (delivered uint64, gaveBack int) {
+	delivered = 1
+	if md, err := msg.Metadata(); err == nil {
+		delivered = md.NumDelivered
+	}
+	h := msg.Headers()
+	if n, err := strconv.ParseUint(h.Get(headerCounted), 10, 32); err == nil {
+		delivered += n
+	}
+	if n, err := strconv.Atoi(h.Get(headerGaveBack)); err == nil && n > 0 {
+		gaveBack = n
+	}
+	return delivered, gaveBack
+}
+
+// giveBack hands a job the worker was asked to stop on purpose back to
+// the queue without counting this delivery against the job's delivery
+// limit: a stopped worker did not fail the job. The server's delivery
+// count of a message cannot be lowered, so the job is published again
+// as a new message on its subject, carrying the deliveries that counted
+// before this one and the give-backs (deliveries), and this message is
+// acknowledged. When publishing fails, the message is given back
+// unacknowledged instead, and that delivery counts. It says which.
+func (w *Worker) giveBack(msg jetstream.Msg, delivered uint64, gaveBack int) string {
+	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+	defer cancel()
+	again := &nats.Msg{Subject: msg.Subject(), Data: msg.Data(), Header: nats.Header{}}
+	again.Header.Set(headerCounted, strconv.FormatUint(delivered-1, 10))
+	again.Header.Set(headerGaveBack, strconv.Itoa(gaveBack+1))
+	if _, err := w.Client.js.PublishMsg(ctx, again); err != nil {
+		msg.Nak()
+		return fmt.Sprintf("not acknowledged: delivered again to another worker; publishing it anew failed (%v), so this delivery counts against its limit of %d", err, PoisonAfter)
+	}
+	if err := msg.Ack(); err != nil {
+		// The job is queued twice: the replies store keeps the first
+		// reply and drops the other.
+		return fmt.Sprintf("queued again for another worker, not counted against its delivery limit; acknowledging the old message failed (%v), so it may be computed twice, its first reply kept", err)
+	}
+	return "queued again for another worker, not counted against its delivery limit"
 }
 
 // sealReply encodes and seals a reply for its key. A reply too large for
