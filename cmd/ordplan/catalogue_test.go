@@ -2719,6 +2719,34 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("a missing login file: exit %d: %s", code, e)
 				}
 			}},
+		{id: "Q18", name: "a login or token file other users may read", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-login", d("open.login")}, code: 1, lines: true,
+			setup: func(t *testing.T, dir, id string) {
+				for name, mode := range map[string]os.FileMode{"open.login": 0o644, "group.token": 0o640, "own.token": 0o600} {
+					p := filepath.Join(dir, name)
+					os.WriteFile(p, []byte("ordplan\nhunter2-s3cret\n"), 0o600)
+					if name != "open.login" {
+						os.WriteFile(p, []byte("tok-hunter2-s3cret\n"), 0o600)
+					}
+					if err := os.Chmod(p, mode); err != nil {
+						t.Fatal(err)
+					}
+				}
+			},
+			want: []string{"warning: login file (--queue-login) open.login can be read by every user of this machine (mode 0644): it holds a secret the queue server accepts from whoever shows it; let its owner alone read it: chmod 600 open.login"},
+			check: func(t *testing.T, dir, out, errs string) {
+				if strings.Contains(errs, "hunter2") {
+					t.Errorf("the file's content is printed: %s", errs)
+				}
+				tok := filepath.Join(dir, "group.token")
+				_, e, _ := runCLI("worker", "--queue", "nats://127.0.0.1:1", "--queue-token", tok)
+				if !strings.Contains(e, "warning: token file (--queue-token) "+tok+" can be read by the other users of its group (mode 0640): it holds a secret the queue server accepts from whoever shows it; let its owner alone read it: chmod 600 "+tok+"\n") || strings.Contains(e, "hunter2") {
+					t.Errorf("a token file its group may read: %s", e)
+				}
+				_, e, _ = runCLI("worker", "--queue", "nats://127.0.0.1:1", "--queue-token", filepath.Join(dir, "own.token"))
+				if strings.Contains(e, "warning:") {
+					t.Errorf("a token file only its owner may read is warned of: %s", e)
+				}
+			}},
 		{id: "Q4", name: "TLS certificate without its key", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-cert", d("d.csv")}, code: 1,
 			want: []string{"a client certificate needs its key and a key its certificate (--queue-cert and --queue-key)"}},
 	}

@@ -34,7 +34,8 @@ type Client struct {
 
 // Connect dials the server cfg names, with its TLS settings and
 // credentials, and opens the shared resources. No message it returns
-// shows a password of the URL.
+// shows a password of the URL. cfg.Log hears of secret files other users
+// may read (OpenSecretFiles) before it connects.
 func Connect(ctx context.Context, cfg Config) (*Client, error) {
 	shown := Redact(cfg.URL)
 	if err := cfg.check(); err != nil {
@@ -75,6 +76,13 @@ func Connect(ctx context.Context, cfg Config) (*Client, error) {
 		}
 		opts = append(opts, nats.Token(tok))
 		hidden = append(hidden, tok)
+	}
+	// Files read as they should be, but open to other users: said once
+	// they are usable, so a file refused above gets its refusal alone.
+	if cfg.Log != nil {
+		for _, w := range cfg.OpenSecretFiles() {
+			fmt.Fprintf(cfg.Log, "warning: %s\n", w)
+		}
 	}
 	nc, err := nats.Connect(cfg.URL, opts...)
 	if err != nil {

@@ -8,6 +8,7 @@ import (
 	"io"
 	"net/url"
 	"os"
+	"runtime"
 	"strings"
 
 	"github.com/nats-io/nats.go"
@@ -36,7 +37,8 @@ type Config struct {
 	// again (the client reconnects without end, so that a restarted
 	// server does not end a run) and of errors the server reports on a
 	// subscription; without it a lost server left a run waiting in
-	// silence until its job deadline.
+	// silence until its job deadline. It hears too of secret files other
+	// users may read (OpenSecretFiles).
 	Log io.Writer
 }
 
@@ -154,6 +156,49 @@ func (cfg Config) authFiles() []fileOption {
 		}
 	}
 	return out
+}
+
+// secretFiles are the files the configuration names that hold a secret
+// for the server: the one that authenticates to it and the client key.
+func (cfg Config) secretFiles() []fileOption {
+	out := cfg.authFiles()
+	if cfg.KeyFile != "" {
+		out = append(out, fileOption{cfg.KeyFile, "client key", "--queue-key"})
+	}
+	return out
+}
+
+// OpenSecretFiles warns of each file holding a secret for the server
+// (secretFiles) that users other than its owner may read: the file, its
+// mode and the fix. Nothing on systems whose file modes do not say who
+// may read a file (Windows), and never what a file holds.
+func (cfg Config) OpenSecretFiles() []string {
+	if runtime.GOOS == "windows" {
+		return nil
+	}
+	var out []string
+	for _, f := range cfg.secretFiles() {
+		fi, err := os.Stat(f.path)
+		if err != nil || fi.Mode().Perm()&0o044 == 0 {
+			continue
+		}
+		who := "every user of this machine"
+		if fi.Mode().Perm()&0o004 == 0 {
+			who = "the other users of its group"
+		}
+		out = append(out, fmt.Sprintf("%s (%s) %s can be read by %s (mode %04o): it holds a secret the queue server accepts from whoever shows it; let its owner alone read it: chmod 600 %s",
+			f.what, f.flag, f.path, who, fi.Mode().Perm(), shellWord(f.path)))
+	}
+	return out
+}
+
+// shellWord is path as one word of a shell command: in single quotes
+// when it holds anything but letters, digits and / . _ - + , : @ %.
+func shellWord(path string) string {
+	if path != "" && strings.Trim(path, "abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789/._-+,:@%") == "" {
+		return path
+	}
+	return "'" + strings.ReplaceAll(path, "'", `'\''`) + "'"
 }
 
 // urlCredentials tells whether a server URL carries a user name,

@@ -13,6 +13,7 @@ import (
 	"net"
 	"os"
 	"path/filepath"
+	"runtime"
 	"strings"
 	"testing"
 	"time"
@@ -336,5 +337,41 @@ func TestCredentialsFile(t *testing.T) {
 		t.Error("a user of an unknown account connected")
 	} else if want := "the server refused the credentials, those of the credentials file (--queue-creds) " + bad + ": "; !strings.Contains(err.Error(), want) {
 		t.Errorf("got %v\nwant %s", err, want)
+	}
+}
+
+// A file holding a secret for the server that other users may read is
+// warned of, with its flag, its mode and the fix (the path quoted for the
+// shell when it needs it), never its content; one only its owner reads,
+// and the files that hold no secret (the CA, the certificate), are not.
+func TestOpenSecretFiles(t *testing.T) {
+	if runtime.GOOS == "windows" {
+		t.Skip("file modes do not say who may read a file")
+	}
+	dir := t.TempDir()
+	file := func(name string, mode os.FileMode) string {
+		p := filepath.Join(dir, name)
+		os.WriteFile(p, []byte("user\nhunter2-s3cret\n"), 0o600)
+		if err := os.Chmod(p, mode); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	spaced := file("my login", 0o604)
+	cfg := Config{LoginFile: spaced, KeyFile: file("client.key", 0o640), CertFile: file("client.pem", 0o644), CAFile: file("ca.pem", 0o644)}
+	got := strings.Join(cfg.OpenSecretFiles(), "\n")
+	want := "login file (--queue-login) " + spaced + " can be read by every user of this machine (mode 0604): it holds a secret the queue server accepts from whoever shows it; let its owner alone read it: chmod 600 '" + spaced + "'\n" +
+		"client key (--queue-key) " + filepath.Join(dir, "client.key") + " can be read by the other users of its group (mode 0640): it holds a secret the queue server accepts from whoever shows it; let its owner alone read it: chmod 600 " + filepath.Join(dir, "client.key")
+	if got != want {
+		t.Errorf("got\n%s\nwant\n%s", got, want)
+	}
+	if strings.Contains(got, "hunter2") {
+		t.Errorf("a file's content is shown: %s", got)
+	}
+	if w := (Config{TokenFile: file("own.token", 0o600), NkeyFile: file("own.nk", 0o400)}).OpenSecretFiles(); len(w) != 0 {
+		t.Errorf("files only their owner may read are warned of: %q", w)
+	}
+	if w := shellWord("it's"); w != `'it'\''s'` {
+		t.Errorf("shellWord(it's) = %s", w)
 	}
 }
