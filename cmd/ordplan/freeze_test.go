@@ -151,15 +151,7 @@ func TestRunsUnderEarlierLocksListed(t *testing.T) {
 	}
 	first, _ := os.ReadFile(filepath.Join(dir, "p.lock.json"))
 	o := filepath.Join(dir, "out")
-	run := func(args ...string) (string, string, string) {
-		out, errs, code := runCLI(append([]string{"run", planPath, "--out", o, "--quiet"}, args...)...)
-		if code != 0 {
-			t.Fatalf("run: %d %s %s", code, out, errs)
-		}
-		md, _ := os.ReadFile(filepath.Join(o, "report.md"))
-		dec, _ := os.ReadFile(filepath.Join(o, "decisions.json"))
-		return out, string(md), string(dec)
-	}
+	run := studyRun(t, planPath, o)
 	_, _, registered := run()
 	sum := sha256.Sum256([]byte(registered))
 	decHash := hex.EncodeToString(sum[:])
@@ -218,6 +210,21 @@ func TestRunsUnderEarlierLocksListed(t *testing.T) {
 	}
 }
 
+// studyRun runs the plan into the output folder o (with more arguments)
+// and returns its stdout, report.md and decisions.json.
+func studyRun(t *testing.T, planPath, o string) func(args ...string) (string, string, string) {
+	return func(args ...string) (string, string, string) {
+		t.Helper()
+		out, errs, code := runCLI(append([]string{"run", planPath, "--out", o, "--quiet"}, args...)...)
+		if code != 0 {
+			t.Fatalf("run: %d %s %s", code, out, errs)
+		}
+		md, _ := os.ReadFile(filepath.Join(o, "report.md"))
+		dec, _ := os.ReadFile(filepath.Join(o, "decisions.json"))
+		return out, string(md), string(dec)
+	}
+}
+
 // jsonField is a top-level string field of a JSON object.
 func jsonField(t *testing.T, b []byte, key string) string {
 	t.Helper()
@@ -240,16 +247,7 @@ func jsonField(t *testing.T, b []byte, key string) string {
 // none) under registration.runs_under_earlier_locks.
 func TestRunsBeforeRegistrationListed(t *testing.T) {
 	dir, planPath, _ := deviationStudy(t)
-	o := filepath.Join(dir, "out")
-	run := func() (string, string, string) {
-		out, errs, code := runCLI("run", planPath, "--out", o, "--quiet")
-		if code != 0 {
-			t.Fatalf("run: %d %s %s", code, out, errs)
-		}
-		md, _ := os.ReadFile(filepath.Join(o, "report.md"))
-		dec, _ := os.ReadFile(filepath.Join(o, "decisions.json"))
-		return out, string(md), string(dec)
-	}
+	run := studyRun(t, planPath, filepath.Join(dir, "out"))
 	_, md, unregistered := run()
 	if strings.Contains(md, "before this plan was registered") {
 		t.Errorf("a run with no lock lists runs before the registration:\n%s", md)

@@ -8,8 +8,6 @@ import (
 	"testing"
 	"time"
 
-	"github.com/nats-io/nats.go/jetstream"
-
 	"ordplan/internal/words"
 	"ordplan/runner/fit"
 )
@@ -155,26 +153,10 @@ func TestGiveBacksDoNotCountAgainstDeliveryLimit(t *testing.T) {
 	if _, err := c.js.Publish(ctx, jobSubject("killed", 0), b); err != nil {
 		t.Fatal(err)
 	}
-	cons, err := c.js.CreateOrUpdateConsumer(ctx, JobStream, jetstream.ConsumerConfig{
-		Durable: WorkerGroup, FilterSubject: JobSubject + ".>", AckPolicy: jetstream.AckExplicitPolicy,
-		AckWait: 200 * time.Millisecond, MaxDeliver: MaxDeliver, DeliverPolicy: jetstream.DeliverAllPolicy})
-	if err != nil {
-		t.Fatal(err)
-	}
-	killed := func(n int) {
-		for range n {
-			msgs, err := cons.Fetch(1, jetstream.FetchMaxWait(5*time.Second))
-			if err != nil {
-				t.Fatal(err)
-			}
-			for range msgs.Messages() { // taken, never answered
-			}
-		}
-	}
 	abortHeld(t, ctx, url, "held-a")
-	killed(2)
+	unanswered(t, ctx, c, 2)
 	abortHeld(t, ctx, url, "held-b")
-	killed(1)
+	unanswered(t, ctx, c, 1)
 	wlog = startWorker(t, url, "w2", 5*time.Second, 0)
 	replies, _, err = c.runBatch(ctx, "killed", []*Task{task}, batchHooks{})
 	if err != nil {

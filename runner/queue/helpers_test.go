@@ -9,6 +9,8 @@ import (
 	"testing"
 	"time"
 
+	"github.com/nats-io/nats.go/jetstream"
+
 	"ordplan/runner"
 	"ordplan/runner/data"
 	"ordplan/runner/fit"
@@ -37,6 +39,32 @@ func connect(t *testing.T, ctx context.Context, url string) *Client {
 	}
 	t.Cleanup(c.Close)
 	return c
+}
+
+// unanswered takes the one queued job n times through the workers'
+// consumer (a short ack wait) and never answers it, as n workers killed
+// while they held it would.
+func unanswered(t *testing.T, ctx context.Context, c *Client, n int) {
+	t.Helper()
+	cons, err := c.js.CreateOrUpdateConsumer(ctx, JobStream, jetstream.ConsumerConfig{
+		Durable: WorkerGroup, FilterSubject: JobSubject + ".>", AckPolicy: jetstream.AckExplicitPolicy,
+		AckWait: 200 * time.Millisecond, MaxDeliver: MaxDeliver, DeliverPolicy: jetstream.DeliverAllPolicy})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i := range n {
+		msgs, err := cons.Fetch(1, jetstream.FetchMaxWait(5*time.Second))
+		if err != nil {
+			t.Fatal(err)
+		}
+		got := 0
+		for range msgs.Messages() {
+			got++
+		}
+		if got != 1 {
+			t.Fatalf("delivery %d: %d messages", i+1, got)
+		}
+	}
 }
 
 // waitFor polls cond until it holds or the limit passes.

@@ -17,8 +17,6 @@ import (
 	"testing"
 	"time"
 
-	"github.com/nats-io/nats.go/jetstream"
-
 	"ordplan/runner"
 	"ordplan/runner/data"
 	"ordplan/runner/fit"
@@ -255,25 +253,7 @@ func TestPoisonedJobReported(t *testing.T) {
 		t.Fatal(err)
 	}
 	// Three workers take the job and die: here, deliveries left unacknowledged.
-	cons, err := c.js.CreateOrUpdateConsumer(ctx, JobStream, jetstream.ConsumerConfig{
-		Durable: WorkerGroup, FilterSubject: JobSubject + ".>", AckPolicy: jetstream.AckExplicitPolicy,
-		AckWait: 200 * time.Millisecond, MaxDeliver: MaxDeliver, DeliverPolicy: jetstream.DeliverAllPolicy})
-	if err != nil {
-		t.Fatal(err)
-	}
-	for n := 0; n < PoisonAfter; n++ {
-		msgs, err := cons.Fetch(1, jetstream.FetchMaxWait(5*time.Second))
-		if err != nil {
-			t.Fatal(err)
-		}
-		got := 0
-		for range msgs.Messages() {
-			got++
-		}
-		if got != 1 {
-			t.Fatalf("delivery %d: %d messages", n+1, got)
-		}
-	}
+	unanswered(t, ctx, c, PoisonAfter)
 	startWorker(t, url, "w1", 5*time.Second, 0)
 	replies, _, err := c.runBatch(ctx, "poison", []*Task{task}, batchHooks{})
 	if err != nil {
