@@ -56,7 +56,7 @@ func (q *queueFlags) config(name string) (queue.Config, error) {
 	if err != nil {
 		return cfg, err
 	}
-	cfg.Secret = s
+	cfg.Secret, cfg.SecretFile = s, *q.secretFile
 	return cfg, nil
 }
 

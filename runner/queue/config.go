@@ -33,6 +33,9 @@ type Config struct {
 	// and replies carry an HMAC-SHA256 made with it, and anything without
 	// a valid one is discarded. See LoadSecret.
 	Secret []byte
+	// SecretFile is the file Secret was read from, if any: only for the
+	// warning of a file other users may read (OpenSecretFiles).
+	SecretFile string
 	// Log, when set, hears of the connection to the server lost and made
 	// again (the client reconnects without end, so that a restarted
 	// server does not end a run) and of errors the server reports on a
@@ -59,7 +62,7 @@ const MinSecretBytes = 16
 
 // LoadSecret reads the shared secret from a file: its bytes, without
 // surrounding white space, at least MinSecretBytes of them (for example
-// `head -c 32 /dev/urandom | base64 > queue.key`).
+// `head -c 32 /dev/urandom | base64 > queue.key && chmod 600 queue.key`).
 func LoadSecret(path string) ([]byte, error) {
 	if err := regularFile(path, "secret file"); err != nil {
 		return nil, err
@@ -70,7 +73,7 @@ func LoadSecret(path string) ([]byte, error) {
 	}
 	b = []byte(strings.TrimSpace(string(b)))
 	if len(b) < MinSecretBytes {
-		return nil, fmt.Errorf("secret file %s: %d bytes; a shared secret needs at least %d (e.g. head -c 32 /dev/urandom | base64 > %s)", path, len(b), MinSecretBytes, path)
+		return nil, fmt.Errorf("secret file %s: %d bytes; a shared secret needs at least %d (e.g. head -c 32 /dev/urandom | base64 > %s && chmod 600 %s)", path, len(b), MinSecretBytes, shellWord(path), shellWord(path))
 	}
 	return b, nil
 }
@@ -109,8 +112,8 @@ func (cfg Config) check() error {
 	if len(ways) == 1 && urlCredentials(cfg.URL) {
 		return fmt.Errorf("the server URL carries a user name or token and %s gives credentials too: give one of them (a file: a URL's password shows in the process list and in shell history)", ways[0])
 	}
-	for _, f := range append([]fileOption{{cfg.CAFile, "CA file", "--queue-ca"}, {cfg.CertFile, "client certificate", "--queue-cert"},
-		{cfg.KeyFile, "client key", "--queue-key"}}, cfg.authFiles()...) {
+	for _, f := range append([]fileOption{{cfg.CAFile, "CA file", "--queue-ca", ""}, {cfg.CertFile, "client certificate", "--queue-cert", ""},
+		{cfg.KeyFile, "client key", "--queue-key", ""}}, cfg.authFiles()...) {
 		if f.path != "" {
 			if err := regularFile(f.path, f.what+" ("+f.flag+")"); err != nil {
 				return err
@@ -142,15 +145,15 @@ func (cfg Config) checkPEM() error {
 }
 
 // fileOption is a file the configuration names, with what it holds and
-// the flag that gives it.
-type fileOption struct{ path, what, flag string }
+// the flag that gives it (why: for a secret, what whoever reads it can do).
+type fileOption struct{ path, what, flag, why string }
 
 // authFiles are the files given to authenticate to the server (at most
 // one is allowed).
 func (cfg Config) authFiles() []fileOption {
 	var out []fileOption
-	for _, f := range []fileOption{{cfg.CredsFile, "credentials file", "--queue-creds"}, {cfg.NkeyFile, "nkey file", "--queue-nkey"},
-		{cfg.LoginFile, "login file", "--queue-login"}, {cfg.TokenFile, "token file", "--queue-token"}} {
+	for _, f := range []fileOption{{cfg.CredsFile, "credentials file", "--queue-creds", ""}, {cfg.NkeyFile, "nkey file", "--queue-nkey", ""},
+		{cfg.LoginFile, "login file", "--queue-login", ""}, {cfg.TokenFile, "token file", "--queue-token", ""}} {
 		if f.path != "" {
 			out = append(out, f)
 		}
@@ -158,12 +161,22 @@ func (cfg Config) authFiles() []fileOption {
 	return out
 }
 
-// secretFiles are the files the configuration names that hold a secret
-// for the server: the one that authenticates to it and the client key.
+// secretFiles are the files the configuration names that hold a secret,
+// with what whoever reads one can do: the one that authenticates to the
+// server, the client key, and the secret shared with the other ordplan
+// processes.
 func (cfg Config) secretFiles() []fileOption {
 	out := cfg.authFiles()
 	if cfg.KeyFile != "" {
-		out = append(out, fileOption{cfg.KeyFile, "client key", "--queue-key"})
+		out = append(out, fileOption{cfg.KeyFile, "client key", "--queue-key", ""})
+	}
+	const server = "it holds a secret the queue server accepts from whoever shows it"
+	for i := range out {
+		out[i].why = server
+	}
+	if cfg.SecretFile != "" {
+		out = append(out, fileOption{cfg.SecretFile, "secret file", "--queue-secret-file",
+			"whoever reads it can seal jobs and replies that the workers and the coordinator accept as their own"})
 	}
 	return out
 }
@@ -186,8 +199,8 @@ func (cfg Config) OpenSecretFiles() []string {
 		if fi.Mode().Perm()&0o004 == 0 {
 			who = "the other users of its group"
 		}
-		out = append(out, fmt.Sprintf("%s (%s) %s can be read by %s (mode %04o): it holds a secret the queue server accepts from whoever shows it; let its owner alone read it: chmod 600 %s",
-			f.what, f.flag, f.path, who, fi.Mode().Perm(), shellWord(f.path)))
+		out = append(out, fmt.Sprintf("%s (%s) %s can be read by %s (mode %04o): %s; let its owner alone read it: chmod 600 %s",
+			f.what, f.flag, f.path, who, fi.Mode().Perm(), f.why, shellWord(f.path)))
 	}
 	return out
 }

@@ -368,6 +368,10 @@ func TestOpenSecretFiles(t *testing.T) {
 	if strings.Contains(got, "hunter2") {
 		t.Errorf("a file's content is shown: %s", got)
 	}
+	shared := file("queue.key", 0o644)
+	if w := (Config{SecretFile: shared}).OpenSecretFiles(); len(w) != 1 || w[0] != "secret file (--queue-secret-file) "+shared+" can be read by every user of this machine (mode 0644): whoever reads it can seal jobs and replies that the workers and the coordinator accept as their own; let its owner alone read it: chmod 600 "+shared {
+		t.Errorf("an open shared secret: %q", w)
+	}
 	if w := (Config{TokenFile: file("own.token", 0o600), NkeyFile: file("own.nk", 0o400)}).OpenSecretFiles(); len(w) != 0 {
 		t.Errorf("files only their owner may read are warned of: %q", w)
 	}
