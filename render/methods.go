@@ -247,8 +247,22 @@ func writeMethods(d *doc, r *runner.Result) {
 // registeredAs is what the methods paragraph says of the plan's
 // registration, after the plan's hash: the lock it matches or departs
 // from, with the registration id, or that it was not frozen; "" when the
-// plan was not compared with a lock.
-func registeredAs(r *runner.Result) string { return registeredText(r.Registration) }
+// plan was not compared with a lock. Runs of the plan that its output
+// folder held from before it was frozen (runner.EarlierLockRuns) are
+// said too: their results existed when it was registered.
+func registeredAs(r *runner.Result) string {
+	s := registeredText(r.Registration)
+	before := 0
+	for _, e := range r.UnderEarlierLocks {
+		if e.Unregistered() {
+			before++
+		}
+	}
+	if before > 0 {
+		s += fmt.Sprintf("; the output folder held %s of the plan made before it was frozen, whose results existed then, listed at the head of the report", words.Count(before, "run", "runs"))
+	}
+	return s
+}
 
 // registeredText is registeredAs of a plan compared with its lock (nil: not
 // compared), for a run's methods and a power study's opening.

@@ -36,4 +36,10 @@ func TestMethodsNameTheRegistration(t *testing.T) {
 			t.Errorf("%+v: got %q, want it to end %q", tc.st, got, tc.want)
 		}
 	}
+	// Runs made before the plan was frozen are said after the lock.
+	before := []runner.EarlierLockRun{{State: lock.StateNone}, {State: lock.StateMatches, LockSHA256: "aa"}, {State: lock.StateNone}}
+	got := registeredAs(&runner.Result{Registration: &lock.Status{State: lock.StateMatches, Lock: f}, UnderEarlierLocks: before})
+	if want := "; frozen on 2026-01-02T03:04:05Z, registration REG-7, canonical SHA-256 0123456789ab; the output folder held 2 runs of the plan made before it was frozen, whose results existed then, listed at the head of the report"; got != want {
+		t.Errorf("got %q, want %q", got, want)
+	}
 }

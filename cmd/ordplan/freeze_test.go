@@ -267,6 +267,7 @@ func TestRunsBeforeRegistrationListed(t *testing.T) {
 	for _, s := range []string{
 		"**This output folder already held 1 run made before this plan was registered**, on the same data as this run: its results existed before the plan was registered as it is now (`p.lock.json`, frozen at " + at + "), so the registered plan may have been written after seeing them: its lock does not show that the analysis was fixed before these results were seen. It is not a run of the registered plan. It is named by the SHA-256 of its decisions.json",
 		"- decisions.json sha256 `" + decHash[:12] + "`, on the same data; with no lock file, its run.json records no time",
+		"; the output folder held 1 run of the plan made before it was frozen, whose results existed then, listed at the head of the report", // Methods
 	} {
 		if !strings.Contains(md, s) {
 			t.Errorf("report.md lacks %q:\n%s", s, md)
