@@ -27,11 +27,11 @@ type RegistrationRecord struct {
 	// EarlierRegistered: the earlier runs of the registered plan,
 	// unchanged, in the output folder of a run that departs from it.
 	EarlierRegistered []EarlierRun `json:"earlier_registered_runs,omitempty"`
-	// UnderEarlierLocks: the earlier runs in the output folder made under
+	// UnderEarlierLocks (JSON runs_outside_this_lock): the earlier runs in the output folder made under
 	// another lock of the plan than its lock now (one freeze --replace
 	// replaced, or one removed), and, when the plan has a lock, those made
 	// while it had none (state "none": before it was registered).
-	UnderEarlierLocks []EarlierLockRun `json:"runs_under_earlier_locks,omitempty"`
+	UnderEarlierLocks []EarlierLockRun `json:"runs_outside_this_lock,omitempty"`
 }
 
 // EarlierRun is an earlier run of the registered plan, unchanged, found

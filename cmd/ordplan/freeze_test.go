@@ -186,7 +186,7 @@ func TestRunsUnderEarlierLocksListed(t *testing.T) {
 			t.Errorf("report.md lacks %q:\n%s", s, md)
 		}
 	}
-	for _, s := range []string{`"runs_under_earlier_locks": [`, `"decisions_sha256": "` + decHash + `"`, `"lock_canonical_sha256": "` + firstHash + `"`,
+	for _, s := range []string{`"runs_outside_this_lock": [`, `"decisions_sha256": "` + decHash + `"`, `"lock_canonical_sha256": "` + firstHash + `"`,
 		`"lock_frozen_at": "` + firstAt + `"`, `"lock_kept_as": "` + kept + `"`, `"lock_registration": "REG 14"`} {
 		if !strings.Contains(dec, s) {
 			t.Errorf("decisions.json lacks %s:\n%.3000s", s, dec)
@@ -244,7 +244,7 @@ func jsonField(t *testing.T, b []byte, key string) string {
 // under an earlier lock: run notes them, the report says their results
 // predate the registration, with their decisions.json's SHA-256 and
 // whether they read the same data, and decisions.json has them (state
-// none) under registration.runs_under_earlier_locks.
+// none) under registration.runs_outside_this_lock.
 func TestRunsBeforeRegistrationListed(t *testing.T) {
 	dir, planPath, _ := deviationStudy(t)
 	run := studyRun(t, planPath, filepath.Join(dir, "out"))
@@ -276,7 +276,7 @@ func TestRunsBeforeRegistrationListed(t *testing.T) {
 	if strings.Contains(md, "made under an earlier lock") || strings.Contains(md, "Frozen anew") {
 		t.Errorf("a run before the first lock is called a run under an earlier lock:\n%s", md)
 	}
-	for _, s := range []string{`"runs_under_earlier_locks": [`, `"decisions_sha256": "` + decHash + `"`, `"state": "none"`} {
+	for _, s := range []string{`"runs_outside_this_lock": [`, `"decisions_sha256": "` + decHash + `"`, `"state": "none"`} {
 		if !strings.Contains(dec, s) {
 			t.Errorf("decisions.json lacks %s:\n%.3000s", s, dec)
 		}
