@@ -57,15 +57,7 @@ func stagePlan(t *testing.T, dir, extra string) *plan.Plan {
 	if strings.Contains(extra, "cluster") {
 		src += "covariance: clustered\n"
 	}
-	path := filepath.Join(dir, "p.yaml")
-	if err := os.WriteFile(path, []byte(src), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	p, err := plan.Load(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return p
+	return planIn(t, dir, src)
 }
 
 // TestStabilityOfAClearChoice: on data made by the stage model with
@@ -329,15 +321,7 @@ func rareLevelData(t *testing.T, dir string) *plan.Plan {
 	src := "version: 1\ndata: {file: d.csv}\noutcomes: [{column: y}]\ncategorical:\n  g: {levels: [a, b, rare]}\npredictors: [x, g]\n" +
 		"models: {approaches: [cumulative], effects: [parallel, nonparallel]}\ntests: {parallel_lines: [lr]}\n" +
 		"rules:\n  - reject_unconverged: true\n  - choose: {by: aic}\nselection_stability: {resamples: 30, seed: 1}\n"
-	path := filepath.Join(dir, "p.yaml")
-	if err := os.WriteFile(path, []byte(src), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	p, err := plan.Load(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return p
+	return planIn(t, dir, src)
 }
 
 // TestStabilityRedrawsLackingLevels: a level of a categorical predictor
@@ -581,14 +565,7 @@ func TestSimulateChosen(t *testing.T) {
 		src := "version: 1\ndata: {file: d.csv, weights: w, weight_kind: " + kind + ", cluster: site}\noutcomes: [{column: y}]\npredictors: [x]\n" +
 			"models: {approaches: [cumulative], effects: [parallel]}\ntests: {parallel_lines: []}\ncovariance: clustered\n" +
 			"rules:\n  - reject_unconverged: true\n  - choose: {by: tic}\n"
-		path := filepath.Join(dir, "p.yaml")
-		if err := os.WriteFile(path, []byte(src), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		p, err := plan.Load(path)
-		if err != nil {
-			t.Fatal(err)
-		}
+		p := planIn(t, dir, src)
 		res, err := Run(p, Options{Workers: 1})
 		if err != nil {
 			t.Fatal(err)
@@ -691,14 +668,7 @@ func TestBootstrapRejectsAsNoncentral(t *testing.T) {
 		"models: {approaches: [cumulative], effects: [parallel, nonparallel]}\ntests: {parallel_lines: [lr]}\n" +
 		"rules:\n  - reject_unconverged: true\n  - reject_if_test_rejects: {test: lr, alpha: 0.05}\n  - prefer_simpler: {by: bic, margin: 2}\n" +
 		"selection_stability: {resamples: 400, seed: 5}\n"
-	path := filepath.Join(dir, "p.yaml")
-	if err := os.WriteFile(path, []byte(src), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	p, err := plan.Load(path)
-	if err != nil {
-		t.Fatal(err)
-	}
+	p := planIn(t, dir, src)
 	res, err := Run(p, Options{Workers: 2})
 	if err != nil {
 		t.Fatal(err)

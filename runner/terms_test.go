@@ -53,15 +53,7 @@ func writePlan(t *testing.T, src string, files map[string]string) *plan.Plan {
 			t.Fatal(err)
 		}
 	}
-	path := filepath.Join(dir, "p.yaml")
-	if err := os.WriteFile(path, []byte(src), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	p, err := plan.Load(path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return p
+	return planIn(t, dir, src)
 }
 
 // Madsen (1976), Copenhagen housing: housing_factors.csv fitted with infl,
