@@ -214,7 +214,7 @@ func drawResample(ds *data.Dataset, n *resampleNeeds, rng *rand.Rand) (out *data
 		return nil, nil, fmt.Sprintf("each of the %d %s alone holds a category or level of the data (or a combination an interaction reads), so a resample holding them all is the data again and cannot vary: no resample is drawn", n.units, unit)
 	}
 	var cluster []string
-	d, lacked, failed := n.drawHolding(func() (aDraw, error) {
+	d, lacked, failed := n.drawHolding(drawnResamples, func() (aDraw, error) {
 		rows, weights, c := resampleRows(ds, rng)
 		cluster = c
 		return aDraw{rows: rows, weights: weights}, nil
@@ -232,8 +232,9 @@ func drawResample(ds *data.Dataset, n *resampleNeeds, rng *rand.Rand) (out *data
 // it all while a draw lacking nothing is kept as it was drawn. The one
 // such loop, for bootstrap resamples (drawResample) and outcomes simulated
 // from the chosen model (simulatedOutcome). A non-empty failed says no
-// draw held it all, or a draw failed (its error).
-func (n *resampleNeeds) drawHolding(draw func() (aDraw, error)) (d aDraw, lacked [][]string, failed string) {
+// draw held it all (worded for what was drawn, kind), or a draw failed
+// (its error).
+func (n *resampleNeeds) drawHolding(kind drawKind, draw func() (aDraw, error)) (d aDraw, lacked [][]string, failed string) {
 	for range MaxStabilityDraws {
 		d, err := draw()
 		if err != nil {
@@ -248,5 +249,17 @@ func (n *resampleNeeds) drawHolding(draw func() (aDraw, error)) (d aDraw, lacked
 		return d, lacked, ""
 	}
 	last := lacked[len(lacked)-1]
-	return aDraw{}, lacked, fmt.Sprintf("none of %d draws held every category and level of the data (the last lacked %s), so the resample was not drawn", MaxStabilityDraws, strings.Join(last[:min(3, len(last))], ", "))
+	some := strings.Join(last[:min(3, len(last))], ", ")
+	if kind == drawnOutcomes {
+		return aDraw{}, lacked, fmt.Sprintf("none of %d sets of outcomes drawn from the chosen model held every category of the outcome that the data hold (the last lacked %s), so no set was kept for this repetition", MaxStabilityDraws, some)
+	}
+	return aDraw{}, lacked, fmt.Sprintf("none of %d draws held every category and level of the data (the last lacked %s), so the resample was not drawn", MaxStabilityDraws, some)
 }
+
+// drawKind is what drawHolding draws, for the words of its failure.
+type drawKind int
+
+const (
+	drawnResamples drawKind = iota // bootstrap resamples of the rows
+	drawnOutcomes                  // outcomes simulated from the chosen model
+)

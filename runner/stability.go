@@ -544,7 +544,7 @@ func simulatedOutcome(an *Analysis, rd Reading, primary *OutcomeResult, n *resam
 // (nil n: the first set), through drawHolding, as drawResample draws a
 // resample.
 func drawSimulated(primary *OutcomeResult, n *resampleNeeds, rng *rand.Rand) (ds *data.Dataset, lacked [][]string, failed string) {
-	_, lacked, failed = n.drawHolding(func() (aDraw, error) {
+	_, lacked, failed = n.drawHolding(drawnOutcomes, func() (aDraw, error) {
 		var rows []int
 		var err error
 		ds, rows, err = SimulateChosen(primary, rng)

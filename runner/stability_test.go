@@ -399,6 +399,16 @@ func TestDrawResampleConditional(t *testing.T) {
 	if _, _, failed := drawResample(small, ns, resampleRNG(1, 0, 0)); !strings.Contains(failed, "each of the 3 rows alone holds") {
 		t.Errorf("three rows, three categories: %q", failed)
 	}
+
+	// A level no row holds (added to the needs by hand) is lacked by
+	// every draw: the resample fails after MaxStabilityDraws, saying so.
+	never := needsOf(or.Design, or.Data, "y")
+	never.facets[0].names = append(never.facets[0].names, "y = never")
+	_, lacked, failed := drawResample(or.Data, never, resampleRNG(9, 0, 0))
+	if len(lacked) != MaxStabilityDraws || !strings.HasPrefix(failed, fmt.Sprintf("none of %d draws held every category and level of the data (the last lacked y = never", MaxStabilityDraws)) ||
+		!strings.HasSuffix(failed, "), so the resample was not drawn") {
+		t.Errorf("a level never drawn: %d draws set aside, %q", len(lacked), failed)
+	}
 }
 
 // TestDrawSimulatedConditional: outcomes drawn from the chosen model at the
@@ -466,6 +476,17 @@ func TestDrawSimulatedConditional(t *testing.T) {
 	se := math.Sqrt(miss * (1 - miss) / R)
 	if share := float64(first) / R; math.Abs(share-miss) > 4*se {
 		t.Errorf("share of first sets lacking category 3 %.4f, want %.4f +- %.4f", share, miss, 4*se)
+	}
+
+	// A category the model never draws (added to the needs by hand) is
+	// lacked by every set: the failure speaks of sets drawn from the
+	// chosen model, not of a resample.
+	never := needsOf(or.Design, or.Data, "y")
+	never.facets[0].names = append(never.facets[0].names, "y = never")
+	_, lacked, failed := drawSimulated(or, never, resampleRNG(4, 0, 0))
+	if len(lacked) != MaxStabilityDraws || !strings.HasPrefix(failed, fmt.Sprintf("none of %d sets of outcomes drawn from the chosen model held every category of the outcome that the data hold (the last lacked ", MaxStabilityDraws)) ||
+		!strings.HasSuffix(failed, "y = never), so no set was kept for this repetition") {
+		t.Errorf("a category never drawn: %d sets set aside, %q", len(lacked), failed)
 	}
 }
 
