@@ -280,15 +280,7 @@ func (k *kernel) adjacent(L []float64, c int, g, h []float64) (float64, bool) {
 			ps[m], dps[m], d2ps[m] = L[m], 1, 0
 			continue
 		}
-		if v, d1, d2, ok := k.link.ratio(L[m]); ok {
-			ps[m], dps[m], d2ps[m] = v, d1, d2
-			continue
-		}
-		lo, up := k.link.lower(L[m]), k.link.upper(L[m])
-		// Far in a tail one of the logs overflows: keep psi finite (the
-		// probabilities are then exactly 0 on one side) so that sums of psi
-		// never meet Inf - Inf.
-		ps[m], dps[m], d2ps[m] = clampHuge(lo.v-up.v), clampHuge(lo.d1-up.d1), clampHuge(lo.d2-up.d2)
+		ps[m], dps[m], d2ps[m] = k.link.psi(L[m])
 	}
 	lp, ok, C, U := adjacentProbs(ps, c, s, P, g != nil || h != nil)
 	if !ok || (g == nil && h == nil) {
@@ -316,6 +308,20 @@ func (k *kernel) adjacent(L []float64, c int, g, h []float64) (float64, bool) {
 		}
 	}
 	return lp, true
+}
+
+// psi is an adjacent comparison's psi = log F(z) - log(1 - F(z)) and its
+// first and second derivatives under a link other than the logit
+// (Link.ratio, else the two tails).
+func (l Link) psi(z float64) (v, d1, d2 float64) {
+	if v, d1, d2, ok := l.ratio(z); ok {
+		return v, d1, d2
+	}
+	lo, up := l.lower(z), l.upper(z)
+	// Far in a tail one of the logs overflows: keep psi finite (the
+	// probabilities are then exactly 0 on one side) so that sums of psi
+	// never meet Inf - Inf.
+	return clampHuge(lo.v - up.v), clampHuge(lo.d1 - up.d1), clampHuge(lo.d2 - up.d2)
 }
 
 // adjacentProbs returns log P(y = c) of the adjacent comparison from psi

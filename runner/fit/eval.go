@@ -645,6 +645,9 @@ func (p *problem) blockKernels(c *coefs, lo, rows, order int, expected bool, a *
 		if p.ker.cmp == Stage || p.ker.cmp == stackedBinary {
 			return p.stageKernels(c, lo, rows, order, a, s)
 		}
+		if p.ker.cmp == Adjacent && p.q < 16 {
+			return p.adjacentKernels(c, lo, rows, order, a, s)
+		}
 	}
 	var g, h []float64
 	if order >= 1 {

@@ -19,8 +19,6 @@ func (p *problem) logitKernels(c *coefs, lo, rows, order int, a *acc, s *scratch
 	switch {
 	case p.ker.cmp == Stage || p.ker.cmp == stackedBinary:
 		return p.tailKernels(c, lo, rows, order, a, s), true
-	case p.ker.cmp == Adjacent && p.q < 16:
-		return p.adjacentKernels(c, lo, rows, order, a, s), true
 	}
 	return false, false
 }
@@ -183,14 +181,16 @@ func tailAdd(sh, tt, g, h, w []float64, y, list []int, z, e []float64, m int) {
 	}
 }
 
-// adjacentKernels is blockKernels for an adjacent model under the logit
-// link with observed derivatives and fewer than 16 equations: adjacentProbs
-// of every row, the first derivatives 1 - C_m (m at or above the category)
-// or -C_m, and the second derivatives -C_m (1 - C_l) of every pair
-// m <= l. In sweeps over chunks of adjacentChunk rows (adjacentRows), so
-// that the rows, which do not depend on one another, overlap and no
-// branch depends on a row's values; the same sums in the same order as
-// adjacentProbs: its values bit for bit.
+// adjacentKernels is blockKernels for an adjacent model with observed
+// derivatives and fewer than 16 equations: adjacentProbs of every row, the
+// first derivatives 1 - C_m (m at or above the category) or -C_m, and the
+// second derivatives -C_m (1 - C_l) of every pair m <= l, under the logit
+// link (psi_m = L_m); under the others those of psi_m (Link.psi) times
+// psi's derivatives, as kernel.adjacent forms them. In sweeps over chunks
+// of adjacentChunk rows (adjacentRows), so that the rows, which do not
+// depend on one another, overlap and no branch depends on a row's values;
+// the same sums in the same order as adjacentProbs: its values bit for
+// bit.
 func (p *problem) adjacentKernels(c *coefs, lo, rows, order int, a *acc, s *scratch) bool {
 	var w []float64
 	if p.d.w != nil {
@@ -259,13 +259,32 @@ var ones = func() (o [adjacentChunk]float64) {
 //     of each, the first and second derivatives.
 func (p *problem) adjacentRows(c *coefs, off, n, rows, order int, y []int, w []float64, a *acc, s *scratch) bool {
 	q, es := p.q, s.etaStride
-	t, top := s.kernelTemp(2*q+4, 1, n)
+	logit := p.ker.link == Logit
+	nt := 2*q + 4
+	if !logit {
+		nt += 3 * q
+	}
+	t, top := s.kernelTemp(nt, 1, n)
 	top = top[:n]
 	T, P := t[:(q+1)*n], t[(q+1)*n:2*(q+1)*n]
 	S, lg := t[2*(q+1)*n:][:n], t[(2*q+3)*n:][:n]
 	tau := c.tau[:q]
 	col := func(v []float64, j int) []float64 { return v[j*n : (j+1)*n] }
 	eta := func(m int) []float64 { return s.eta[m*es+off:][:n] }
+	var D1, D2 []float64
+	if !logit {
+		// Under the other links the sweeps below take psi_m in place of
+		// L_m = tau_m - eta_m: its negative as eta and 0 as tau, 0 - (-psi)
+		// being psi (+0 for -0, which the sums, never -0 themselves, add
+		// and subtract as +0), and psi's derivatives.
+		ng := t[(2*q+4)*n:][:q*n]
+		D1, D2 = t[(3*q+4)*n:][:q*n], t[(4*q+4)*n:][:q*n]
+		for m := range q {
+			psiTo(col(ng, m), col(D1, m), col(D2, m), eta(m), tau[m], p.ker.link)
+		}
+		tau = zeroTau[:q]
+		eta = func(m int) []float64 { return col(ng, m) }
+	}
 	// The scores from the top (s_q = 0) and the first largest (in lg).
 	clear(S)
 	clear(lg)
@@ -311,6 +330,18 @@ func (p *problem) adjacentRows(c *coefs, off, n, rows, order int, y []int, w []f
 		sumTo(col(P, m+1), col(P, m+2), col(P, m+1))
 	}
 	C, U := T[:q*n], P[n:(q+1)*n]
+	if !logit {
+		for m := range q {
+			psiFirst(s.gs[m*rows+off:][:n], w, col(C, m), col(U, m), col(D1, m), y, m)
+		}
+		if order >= 2 {
+			for pi, pr := range p.pairs {
+				m, l := pr[0], pr[1]
+				psiSecond(s.hp[pi*rows+off:][:n], w, col(C, m), col(U, l), col(D1, m), col(D1, l), col(D2, m), col(U, m), y, m, l)
+			}
+		}
+		return true
+	}
 	for m := range q {
 		adjacentFirst(s.gs[m*rows+off:][:n], w, col(C, m), col(U, m), y, m)
 	}
@@ -320,6 +351,46 @@ func (p *problem) adjacentRows(c *coefs, off, n, rows, order int, y []int, w []f
 		}
 	}
 	return true
+}
+
+// zeroTau are the 0 cutpoints adjacentRows takes with -psi as eta.
+var zeroTau [16]float64
+
+// psiTo sets ng to -psi (Link.psi) of L = tau - eta and d1, d2 to psi's
+// derivatives.
+func psiTo(ng, d1, d2, eta []float64, tau float64, l Link) {
+	ng, d1, d2 = ng[:len(eta)], d1[:len(eta)], d2[:len(eta)]
+	for i, v := range eta {
+		ps, a, b := l.psi(tau - v)
+		ng[i], d1[i], d2[i] = -ps, a, b
+	}
+}
+
+// psiFirst sets the first derivatives of equation m under a link other
+// than the logit, w times psi' U_m (m at or above the row's category y) or
+// psi' (-C_m), as kernel.adjacent forms them.
+func psiFirst(g, w, cm, um, d1 []float64, y []int, m int) {
+	g, w, cm, um, d1 = g[:len(y)], w[:len(y)], cm[:len(y)], um[:len(y)], d1[:len(y)]
+	for i, yi := range y {
+		g[i] = w[i] * mulZero(d1[i], pick(m >= yi, um[i], -cm[i]))
+	}
+}
+
+// psiSecond sets the second derivatives of a pair m <= l under a link
+// other than the logit, as kernel.adjacent forms them: w times -(C_m U_l)
+// psi_m' psi_l', plus on the diagonal psi_m” times the first derivative's
+// factor (U_m, m at or above the row's category y, or -C_m).
+func psiSecond(h, w, cm, ul, d1m, d1l, d2m, um []float64, y []int, m, l int) {
+	h, w, cm, ul, d1m, d1l = h[:len(y)], w[:len(y)], cm[:len(y)], ul[:len(y)], d1m[:len(y)], d1l[:len(y)]
+	d2m, um = d2m[:len(y)], um[:len(y)]
+	for i, yi := range y {
+		v := -mulZero(mulZero(cm[i]*ul[i], d1m[i]), d1l[i])
+		if m == l {
+			h[i] = w[i] * ((0 + mulZero(d2m[i], pick(m >= yi, um[i], -cm[i]))) + v)
+		} else {
+			h[i] = w[i] * (0 + v)
+		}
+	}
 }
 
 // adjacentTop adds L_j = tau - eta to the rows' scores S (summed from the
