@@ -2746,6 +2746,13 @@ func catalogue(dir string) (items []badInput) {
 				if strings.Contains(e, "warning:") {
 					t.Errorf("a token file only its owner may read is warned of: %s", e)
 				}
+				// The same file given by the environment variable: the
+				// warning names the variable, not the flag.
+				t.Setenv("ORDPLAN_QUEUE_TOKEN", tok)
+				_, e, _ = runCLI("worker", "--queue", "nats://127.0.0.1:1")
+				if !strings.Contains(e, "warning: token file (ORDPLAN_QUEUE_TOKEN) "+tok+" can be read by the other users of its group (mode 0640):") {
+					t.Errorf("a token file its group may read, from the environment: %s", e)
+				}
 			}},
 		{id: "Q4", name: "TLS certificate without its key", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-cert", d("d.csv")}, code: 1,
 			want: []string{"a client certificate needs its key and a key its certificate (--queue-cert and --queue-key)"}},

@@ -8,6 +8,7 @@ import (
 	"io"
 	"os"
 	"os/signal"
+	"strings"
 	"sync"
 	"syscall"
 	"time"
@@ -21,11 +22,13 @@ import (
 type queueFlags struct {
 	url, ca, cert, key, creds, nkey, login, token, secretFile *string
 	deadline                                                  *time.Duration
+	fs                                                        *flag.FlagSet
 }
 
 func addQueueFlags(fs *flag.FlagSet, urlHelp string, coordinator bool) *queueFlags {
 	env := os.Getenv
 	q := &queueFlags{
+		fs:         fs,
 		url:        fs.String("queue", "", urlHelp),
 		ca:         fs.String("queue-ca", env(queue.EnvCA), "PEM file of the authorities that sign the server's TLS certificate (env "+queue.EnvCA+")"),
 		cert:       fs.String("queue-cert", env(queue.EnvCert), "PEM client certificate, when the server verifies clients (env "+queue.EnvCert+")"),
@@ -49,6 +52,15 @@ var errNoSecret = errors.New("--queue needs the shared secret: give --queue-secr
 // config builds the connection settings; a missing secret is errNoSecret.
 func (q *queueFlags) config(name string) (queue.Config, error) {
 	cfg := queue.Config{URL: *q.url, Name: name, CAFile: *q.ca, CertFile: *q.cert, KeyFile: *q.key, CredsFile: *q.creds, NkeyFile: *q.nkey, LoginFile: *q.login, TokenFile: *q.token}
+	// A file flag not given on the command line but holding a file has it
+	// from its environment variable: messages name the variable.
+	given := map[string]bool{}
+	q.fs.Visit(func(f *flag.Flag) { given[f.Name] = true })
+	q.fs.VisitAll(func(f *flag.Flag) {
+		if strings.HasPrefix(f.Name, "queue-") && !given[f.Name] && f.Value.String() != "" {
+			cfg.FromEnv = append(cfg.FromEnv, "--"+f.Name)
+		}
+	})
 	if *q.secretFile == "" {
 		return cfg, errNoSecret
 	}

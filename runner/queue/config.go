@@ -9,6 +9,7 @@ import (
 	"net/url"
 	"os"
 	"runtime"
+	"slices"
 	"strings"
 
 	"github.com/nats-io/nats.go"
@@ -36,6 +37,10 @@ type Config struct {
 	// SecretFile is the file Secret was read from, if any: only for the
 	// warning of a file other users may read (OpenSecretFiles).
 	SecretFile string
+	// FromEnv lists the flags (e.g. "--queue-login") whose file was given
+	// by their environment variable (EnvLogin) rather than on the command
+	// line, so that messages about the file name the variable instead.
+	FromEnv []string
 	// Log, when set, hears of the connection to the server lost and made
 	// again (the client reconnects without end, so that a restarted
 	// server does not end a run) and of errors the server reports on a
@@ -56,6 +61,25 @@ const (
 	EnvToken      = "ORDPLAN_QUEUE_TOKEN"
 	EnvSecretFile = "ORDPLAN_QUEUE_SECRET_FILE"
 )
+
+// envOf is the environment variable that gives each file flag.
+var envOf = map[string]string{"--queue-ca": EnvCA, "--queue-cert": EnvCert, "--queue-key": EnvKey, "--queue-creds": EnvCreds,
+	"--queue-nkey": EnvNkey, "--queue-login": EnvLogin, "--queue-token": EnvToken, "--queue-secret-file": EnvSecretFile}
+
+// givenBy names where the file of flag came from, for a message: the
+// flag, or its environment variable when that gave it (FromEnv).
+func (cfg Config) givenBy(flag string) string {
+	if slices.Contains(cfg.FromEnv, flag) && envOf[flag] != "" {
+		return envOf[flag]
+	}
+	return flag
+}
+
+// file is the file path the configuration names, holding what, given by
+// flag or its environment variable (givenBy).
+func (cfg Config) file(path, what, flag string) fileOption {
+	return fileOption{path: path, what: what, flag: cfg.givenBy(flag)}
+}
 
 // MinSecretBytes is the shortest shared secret accepted.
 const MinSecretBytes = 16
@@ -112,8 +136,8 @@ func (cfg Config) check() error {
 	if len(ways) == 1 && urlCredentials(cfg.URL) {
 		return fmt.Errorf("the server URL carries a user name or token and %s gives credentials too: give one of them (a file: a URL's password shows in the process list and in shell history)", ways[0])
 	}
-	for _, f := range append([]fileOption{{cfg.CAFile, "CA file", "--queue-ca", ""}, {cfg.CertFile, "client certificate", "--queue-cert", ""},
-		{cfg.KeyFile, "client key", "--queue-key", ""}}, cfg.authFiles()...) {
+	for _, f := range append([]fileOption{cfg.file(cfg.CAFile, "CA file", "--queue-ca"), cfg.file(cfg.CertFile, "client certificate", "--queue-cert"),
+		cfg.file(cfg.KeyFile, "client key", "--queue-key")}, cfg.authFiles()...) {
 		if f.path != "" {
 			if err := regularFile(f.path, f.what+" ("+f.flag+")"); err != nil {
 				return err
@@ -130,30 +154,31 @@ func (cfg Config) checkPEM() error {
 	if cfg.CAFile != "" {
 		b, err := os.ReadFile(cfg.CAFile)
 		if err != nil {
-			return fmt.Errorf("CA file (--queue-ca) %s: %v", cfg.CAFile, osMsg(err))
+			return fmt.Errorf("CA file (%s) %s: %v", cfg.givenBy("--queue-ca"), cfg.CAFile, osMsg(err))
 		}
 		if !x509.NewCertPool().AppendCertsFromPEM(b) {
-			return fmt.Errorf("CA file (--queue-ca) %s: holds no PEM certificate (-----BEGIN CERTIFICATE-----): give the certificate of the authority that signed the server's", cfg.CAFile)
+			return fmt.Errorf("CA file (%s) %s: holds no PEM certificate (-----BEGIN CERTIFICATE-----): give the certificate of the authority that signed the server's", cfg.givenBy("--queue-ca"), cfg.CAFile)
 		}
 	}
 	if cfg.CertFile != "" {
 		if _, err := tls.LoadX509KeyPair(cfg.CertFile, cfg.KeyFile); err != nil {
-			return fmt.Errorf("client certificate (--queue-cert) %s with its key (--queue-key) %s: %v: give a PEM certificate and the PEM private key it was made for", cfg.CertFile, cfg.KeyFile, err)
+			return fmt.Errorf("client certificate (%s) %s with its key (%s) %s: %v: give a PEM certificate and the PEM private key it was made for", cfg.givenBy("--queue-cert"), cfg.CertFile, cfg.givenBy("--queue-key"), cfg.KeyFile, err)
 		}
 	}
 	return nil
 }
 
 // fileOption is a file the configuration names, with what it holds and
-// the flag that gives it (why: for a secret, what whoever reads it can do).
+// the flag or environment variable that gives it (why: for a secret, what
+// whoever reads it can do).
 type fileOption struct{ path, what, flag, why string }
 
 // authFiles are the files given to authenticate to the server (at most
 // one is allowed).
 func (cfg Config) authFiles() []fileOption {
 	var out []fileOption
-	for _, f := range []fileOption{{cfg.CredsFile, "credentials file", "--queue-creds", ""}, {cfg.NkeyFile, "nkey file", "--queue-nkey", ""},
-		{cfg.LoginFile, "login file", "--queue-login", ""}, {cfg.TokenFile, "token file", "--queue-token", ""}} {
+	for _, f := range []fileOption{cfg.file(cfg.CredsFile, "credentials file", "--queue-creds"), cfg.file(cfg.NkeyFile, "nkey file", "--queue-nkey"),
+		cfg.file(cfg.LoginFile, "login file", "--queue-login"), cfg.file(cfg.TokenFile, "token file", "--queue-token")} {
 		if f.path != "" {
 			out = append(out, f)
 		}
@@ -168,15 +193,16 @@ func (cfg Config) authFiles() []fileOption {
 func (cfg Config) secretFiles() []fileOption {
 	out := cfg.authFiles()
 	if cfg.KeyFile != "" {
-		out = append(out, fileOption{cfg.KeyFile, "client key", "--queue-key", ""})
+		out = append(out, cfg.file(cfg.KeyFile, "client key", "--queue-key"))
 	}
 	const server = "it holds a secret the queue server accepts from whoever shows it"
 	for i := range out {
 		out[i].why = server
 	}
 	if cfg.SecretFile != "" {
-		out = append(out, fileOption{cfg.SecretFile, "secret file", "--queue-secret-file",
-			"whoever reads it can seal jobs and replies that the workers and the coordinator accept as their own"})
+		f := cfg.file(cfg.SecretFile, "secret file", "--queue-secret-file")
+		f.why = "whoever reads it can seal jobs and replies that the workers and the coordinator accept as their own"
+		out = append(out, f)
 	}
 	return out
 }

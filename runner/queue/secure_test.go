@@ -372,6 +372,11 @@ func TestOpenSecretFiles(t *testing.T) {
 	if w := (Config{SecretFile: shared}).OpenSecretFiles(); len(w) != 1 || w[0] != "secret file (--queue-secret-file) "+shared+" can be read by every user of this machine (mode 0644): whoever reads it can seal jobs and replies that the workers and the coordinator accept as their own; let its owner alone read it: chmod 600 "+shared {
 		t.Errorf("an open shared secret: %q", w)
 	}
+	fromEnv := Config{LoginFile: spaced, SecretFile: shared, FromEnv: []string{"--queue-login", "--queue-secret-file"}}
+	if w := fromEnv.OpenSecretFiles(); len(w) != 2 || !strings.HasPrefix(w[0], "login file (ORDPLAN_QUEUE_LOGIN) "+spaced+" can be read") ||
+		!strings.HasPrefix(w[1], "secret file (ORDPLAN_QUEUE_SECRET_FILE) "+shared+" can be read") {
+		t.Errorf("files given by the environment: %q", w)
+	}
 	if w := (Config{TokenFile: file("own.token", 0o600), NkeyFile: file("own.nk", 0o400)}).OpenSecretFiles(); len(w) != 0 {
 		t.Errorf("files only their owner may read are warned of: %q", w)
 	}
