@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"html/template"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 
@@ -16,9 +17,9 @@ import (
 type chart struct {
 	number  int // figure number: charts are numbered in page order
 	id      string
-	mark    string // the first line of the title (doc.mark), or ""
-	height  int    // pixels; the width follows the page
-	narrow  int    // pixels of height in a chart narrower than chartNarrow (0: height)
+	mark    string       // the first line of the title (doc.mark), or ""
+	height  int          // pixels; the width follows the page
+	narrow  []narrowStep // its heights in narrower charts (nil: height at every width)
 	caption string
 	option  string  // JSON
 	static  *figure // the same chart as a static image for report.md (nil: none)
@@ -51,7 +52,7 @@ func newChart(fr *chartFrame, caption string, c echartsChart) *chart {
 	fmt.Sscanf(fr.id, "chart-%d", &n)
 	ch := &chart{number: n, id: fr.id, mark: fr.mark, height: fr.height, caption: caption, option: js}
 	if fr.narrow != nil {
-		ch.narrow = fr.narrow.height
+		ch.narrow = fr.narrow.steps
 	}
 	return ch
 }
@@ -65,7 +66,14 @@ type chartFrame struct {
 	height              int    // pixels: with a one-line title and subtitle and a one-row legend
 	grid                opts.Grid
 	legend              []string // the legend's entries, at the bottom unless legendRight
-	legendRight         bool     // the legend stands right of the plot, one entry per line
+	// legendRight: the legend stands right of the plot, one entry per
+	// line, listed from the top, in a chart at least chartNarrow wide. In
+	// a narrower one it stands below the plot, as the other charts' do, its
+	// entries in the reverse order (the stacked layers' from the bottom up,
+	// read from the left), and the plot's right margin is rightBelow. The
+	// wide chart leaves no room below the plot for a legend (legendStrip).
+	legendRight bool
+	rightBelow  string
 	// lineOnly are the legend entries of series drawn without points: their
 	// legend icon is the line alone (dashed if the line is), without the
 	// point the library puts on a line's icon. The legend then lists the
@@ -76,21 +84,28 @@ type chartFrame struct {
 	// the chart keeps the height of the charts beside it, and its x axis
 	// their place.
 	yNameBeside bool
-	narrow      *narrowLayout // set by opts: the layout in a narrow chart, if another
+	narrow      *narrowLayout // set by opts: the layouts in narrower charts, if others
 	// tooltipNames are the names the axis tooltip gives the series, in
 	// their order, where series share a name (nil: their own names).
 	tooltipNames []string
 }
 
-// narrowLayout is a chart's layout when it is narrower than chartNarrow
-// pixels (on a phone): the title and subtitle wrapped to narrowText, the
-// plot's top and bottom margins moved by the lines and legend rows that
-// makes, and the chart's height, so that the plot keeps its size.
+// narrowLayout is a chart's layouts when it is narrower than chartNarrow
+// pixels (on a phone): at each of narrowSteps, the title and subtitle
+// wrapped to the step's text width, the plot's top and bottom margins
+// moved by the lines and legend rows that makes, and the chart's height,
+// so that the plot keeps its size.
 type narrowLayout struct {
-	title, subtitle string
-	top, bottom     string // the grid's margins
-	height          int
-	wide            narrowOption // the same options at the chart's usual width
+	wide  narrowOption // the options at the chart's usual width
+	steps []narrowStep // from the widest; only those that change the layout
+}
+
+// narrowStep is a chart's layout when it is narrower than below pixels
+// (down to the next step's width).
+type narrowStep struct {
+	below  int
+	height int
+	option narrowOption
 }
 
 // narrowOption is what a narrow chart changes of the chart's option: the
@@ -103,7 +118,21 @@ type narrowOption struct {
 	Grid [1]struct {
 		Top    string `json:"top,omitempty"`
 		Bottom string `json:"bottom,omitempty"`
+		Right  string `json:"right,omitempty"`
 	} `json:"grid"`
+	Legend *narrowLegend `json:"legend,omitempty"`
+}
+
+// narrowLegend is where a legend that moves (chartFrame.legendRight)
+// stands: every side is given, "auto" for the free ones, so that the
+// library takes these alone.
+type narrowLegend struct {
+	Orient string   `json:"orient"`
+	Left   string   `json:"left"`
+	Right  string   `json:"right"`
+	Top    string   `json:"top"`
+	Bottom string   `json:"bottom"`
+	Data   []string `json:"data"`
 }
 
 func newNarrowOption(title, subtitle, top, bottom string) narrowOption {
@@ -113,22 +142,39 @@ func newNarrowOption(title, subtitle, top, bottom string) narrowOption {
 	return o
 }
 
-// media is the library's media option: the narrow layout below
-// chartNarrow pixels, the usual one otherwise (a media entry without a
-// query, which the library goes back to when the chart widens again).
+// media is the library's media option: the usual layout (a media entry
+// without a query, which the library goes back to when the chart widens
+// again), then each narrower one below its width. The library applies
+// every entry whose query holds, in order, so that the narrowest step a
+// chart is narrower than has the last word.
 func (n *narrowLayout) media() []any {
 	type query struct {
 		MaxWidth int `json:"maxWidth"`
 	}
-	return []any{
-		struct {
-			Option narrowOption `json:"option"`
-		}{n.wide},
-		struct {
+	out := []any{struct {
+		Option narrowOption `json:"option"`
+	}{n.wide}}
+	for _, s := range n.steps {
+		out = append(out, struct {
 			Query  query        `json:"query"`
 			Option narrowOption `json:"option"`
-		}{query{chartNarrow - 1}, newNarrowOption(n.title, n.subtitle, n.top, n.bottom)},
+		}{query{s.below - 1}, s.option})
 	}
+	return out
+}
+
+// heights is the data-narrow attribute of the chart's element: each
+// step's width and height, "WIDTH:HEIGHT", from the widest, for the
+// page's script (drawScript).
+func heights(steps []narrowStep) string {
+	var b strings.Builder
+	for i, s := range steps {
+		if i > 0 {
+			b.WriteByte(' ')
+		}
+		fmt.Fprintf(&b, "%d:%d", s.below, s.height)
+	}
+	return b.String()
 }
 
 // legendItem is a legend entry whose point is hidden (chartFrame.lineOnly).
@@ -176,19 +222,22 @@ func (fr *chartFrame) legendWidth() int {
 // rows of the legend beyond the first make the chart taller (fr.height
 // grows) so that the plot keeps its size.
 func (fr *chartFrame) opts() []charts.GlobalOpts {
-	// extra pixels above the plot and below it, at a text width.
-	room := func(width float64) (title, sub string, above, below int) {
+	// extra pixels above the plot and below it, at a text width, with
+	// the legend below the plot or not.
+	room := func(width float64, legendBelow bool) (title, sub string, above, below int) {
 		title, sub, above = chartTitle(fr.mark, fr.title, fr.subtitle, width)
 		// The y axis's name stands above the plot, below the subtitle,
 		// which may reach over it at phone width: the plot moves down
 		// clear of it.
 		above += yNameRoom
-		if !fr.legendRight {
-			below = (legendRows(fr.legend, width) - 1) * legendRow
+		if legendBelow {
+			below = (legendRows(fr.legend, width, float64(fr.legendWidth())) - 1) * legendRow
+		} else {
+			below = -legendStrip
 		}
 		return title, sub, above, below
 	}
-	title, sub, above, below := room(chartTextWidth)
+	title, sub, above, below := room(chartTextWidth, !fr.legendRight)
 	grid := fr.grid
 	grid.ContainLabel = opts.Bool(true)
 	top, bottom := grid.Top, grid.Bottom
@@ -199,9 +248,32 @@ func (fr *chartFrame) opts() []charts.GlobalOpts {
 	grid.Top, grid.Bottom = addPixels(top, 60, above-beside), addPixels(bottom, 60, below)
 	height := fr.height
 	fr.height += above + below
-	if nt, ns, na, nb := room(narrowText); nt != title || ns != sub || na != above || nb != below {
-		fr.narrow = &narrowLayout{title: nt, subtitle: ns, top: addPixels(top, 60, na-beside), bottom: addPixels(bottom, 60, nb),
-			height: height + na + nb, wide: newNarrowOption(title, sub, grid.Top, grid.Bottom)}
+	wide := newNarrowOption(title, sub, grid.Top, grid.Bottom)
+	var legend *narrowLegend
+	if fr.legendRight {
+		wide.Grid[0].Right = grid.Right
+		wide.Legend = &narrowLegend{Orient: "vertical", Left: "auto", Right: "0", Top: "middle", Bottom: "auto", Data: fr.legend}
+		up := slices.Clone(fr.legend)
+		slices.Reverse(up)
+		legend = &narrowLegend{Orient: "horizontal", Left: "center", Right: "auto", Top: "auto", Bottom: "0", Data: up}
+	}
+	n := &narrowLayout{wide: wide}
+	last := chartNarrow
+	lt, ls, la, lb := title, sub, above, below
+	for _, w := range narrowSteps {
+		nt, ns, na, nb := room(float64(w-chartPadding), true)
+		if nt != lt || ns != ls || na != la || nb != lb {
+			o := newNarrowOption(nt, ns, addPixels(top, 60, na-beside), addPixels(bottom, 60, nb))
+			if legend != nil {
+				o.Grid[0].Right, o.Legend = fr.rightBelow, legend
+			}
+			n.steps = append(n.steps, narrowStep{below: last, height: height + na + nb, option: o})
+			lt, ls, la, lb = nt, ns, na, nb
+		}
+		last = w
+	}
+	if len(n.steps) > 0 {
+		fr.narrow = n
 	}
 	return []charts.GlobalOpts{
 		charts.WithInitializationOpts(opts.Initialization{ChartID: fr.id, Width: "100%", Height: strconv.Itoa(fr.height) + "px"}),

@@ -5,7 +5,6 @@ import (
 	"bytes"
 	"fmt"
 	"html"
-	"strconv"
 	"strings"
 	"unicode"
 
@@ -56,19 +55,20 @@ window.addEventListener("resize",mark);mark();})();`
 // renderer. A chart whose series share names (a legend entry showing and
 // hiding several at once) names each series in its axis tooltip by its
 // option's ordplanTooltip (chartFrame.tooltipNames), escaped as the
-// library escapes series names. A chart narrower than chartNarrow pixels (NARROW) takes the
-// height of its data-narrow attribute, if it has one, before it is drawn
-// and whenever the window's size changes: its option's media query wraps
-// its titles there and moves its plot by the same lines (narrowLayout).
-var drawScript = strings.ReplaceAll(`var ordplanCharts={};
-function ordplanHeight(el){var n=el.getAttribute("data-narrow");if(!n){return;}if(!el.hasAttribute("data-height")){el.setAttribute("data-height",el.style.height);}el.style.height=el.clientWidth<NARROW?n+"px":el.getAttribute("data-height");}
+// library escapes series names. A chart with a data-narrow attribute
+// ("WIDTH:HEIGHT ...", from the widest) takes the height of the narrowest
+// WIDTH it is narrower than, before it is drawn and whenever the window's
+// size changes: its option's media queries wrap its titles there and
+// move its plot by the same lines and legend rows (narrowLayout).
+const drawScript = `var ordplanCharts={};
+function ordplanHeight(el){var n=el.getAttribute("data-narrow");if(!n){return;}if(!el.hasAttribute("data-height")){el.setAttribute("data-height",el.style.height);}var h=el.getAttribute("data-height"),s=n.split(" ");for(var i=0;i<s.length;i++){var p=s[i].split(":");if(el.clientWidth<+p[0]){h=p[1]+"px";}}el.style.height=h;}
 function ordplanTooltip(option){var n=option.ordplanTooltip;if(!n){return;}delete option.ordplanTooltip;var e=echarts.format.encodeHTML;option.tooltip.formatter=function(ps){var s=e(String(ps[0].axisValueLabel));for(var i=0;i<ps.length;i++){var p=ps[i],v=p.value;s+="<br>"+p.marker+e(n[p.seriesIndex])+" <b>"+e(String(v==null?"-":v))+"</b>";}return s;};}
 function ordplanDraw(id,option){var el=document.getElementById(id);try{ordplanHeight(el);ordplanTooltip(option);var c=echarts.init(el,null,{renderer:"canvas"});c.setOption(option);ordplanCharts[id]={chart:c,option:option};el.setAttribute("data-rendered","1");window.addEventListener("resize",function(){ordplanHeight(el);c.resize();});}catch(e){window.ordplanError(id+": "+e);}}
 function ordplanSave(url,name){var a=document.createElement("a");a.href=url;a.download=name;document.body.appendChild(a);a.click();document.body.removeChild(a);}
 function ordplanExport(id,kind){var k=ordplanCharts[id];if(!k){window.ordplanError(id+": not drawn, nothing to export");return;}try{if(kind==="png"){ordplanSave(k.chart.getDataURL({type:"png",pixelRatio:2,backgroundColor:"#ffffff"}),id+".png");return;}
 var el=document.getElementById(id),box=document.createElement("div");box.style.cssText="position:absolute;left:-10000px;top:0;width:"+el.clientWidth+"px;height:"+el.clientHeight+"px";document.body.appendChild(box);
 var s=echarts.init(box,null,{renderer:"svg"});s.setOption(k.option);var url=s.getDataURL({type:"svg",backgroundColor:"#ffffff"});s.dispose();document.body.removeChild(box);ordplanSave(url,id+".svg");}catch(e){window.ordplanError(id+": export failed: "+e);}}
-document.addEventListener("click",function(ev){var b=ev.target.closest?ev.target.closest("button[data-export]"):null;if(b){ordplanExport(b.getAttribute("data-chart"),b.getAttribute("data-export"));}});`, "NARROW", strconv.Itoa(chartNarrow))
+document.addEventListener("click",function(ev){var b=ev.target.closest?ev.target.closest("button[data-export]"):null;if(b){ordplanExport(b.getAttribute("data-chart"),b.getAttribute("data-export"));}});`
 
 // html renders the self-contained report.html: the report's Markdown as
 // HTML, each chart group where report.md has its note, the chart library
@@ -112,8 +112,8 @@ func (d *doc) html(title string) ([]byte, error) {
 				class += " wide"
 			}
 			narrow := ""
-			if c.narrow > 0 {
-				narrow = fmt.Sprintf(" data-narrow=\"%d\"", c.narrow)
+			if len(c.narrow) > 0 {
+				narrow = fmt.Sprintf(" data-narrow=\"%s\"", heights(c.narrow))
 			}
 			fmt.Fprintf(&out, "<figure class=\"%s\"><div class=\"chart\" id=\"%s\" style=\"height:%dpx\"%s></div><figcaption><b>Figure %d.</b> %s</figcaption>"+
 				"<div class=\"chart-tools\">Save: <button type=\"button\" data-export=\"png\" data-chart=\"%s\">PNG</button> <button type=\"button\" data-export=\"svg\" data-chart=\"%s\">SVG</button></div></figure>\n",

@@ -22,14 +22,22 @@ import (
 // chartTextWidth is the width, in pixels, that a chart's title, subtitle
 // and legend may take: a chart of report.html is at least chartNarrow
 // pixels wide (the chart-figure style) less its padding, except on a
-// narrow screen (a phone), where the chart takes the screen's width and
-// its text gets narrowText pixels (a chart 310 pixels wide on a screen of
-// 360, less the title's padding).
+// narrow screen (a phone), where the chart takes the screen's width. A
+// chart narrower than chartNarrow is laid out again at each of
+// narrowSteps, the widths it may take on a phone, each layout serving
+// from its width up to the next wider step (narrowLayout): the text of a
+// chart of w pixels gets w-chartPadding (the padding the library leaves
+// at each side of the title and legend). The narrowest, narrowText, is a
+// chart 310 pixels wide on a screen of 360; a screen of 400 makes a chart
+// of 350.
 const (
 	chartTextWidth = 440
 	chartNarrow    = 480
-	narrowText     = 300
+	chartPadding   = 10
+	narrowText     = 310 - chartPadding
 )
+
+var narrowSteps = [...]int{400, 350, narrowText + chartPadding}
 
 // ellipsis ends a shortened text.
 const ellipsis = "…"
@@ -186,6 +194,7 @@ const (
 	legendRightMax = 120         // pixels an entry of a legend beside the plot may take
 	legendIconRoom = 25 + 5 + 10 // the icon, its gap to the text, the gap to the next entry
 	yNameRoom      = 20          // pixels between the subtitle and the plot for the y axis's name
+	legendStrip    = 40          // pixels a one-row legend at the bottom takes below the x axis's name
 )
 
 // chartTitle wraps a chart's title and subtitle to a text width of
@@ -206,9 +215,9 @@ func chartTitle(mark, title, subtitle string, width float64) (t, s string, extra
 }
 
 // legendRows is how many rows a legend at the bottom of a chart takes for
-// these entries (each shown at most legendTextMax wide) in a text width
-// of width pixels.
-func legendRows(names []string, width float64) int {
+// these entries (each shown at most most pixels wide) in a text width of
+// width pixels.
+func legendRows(names []string, width, most float64) int {
 	rows, x := 1, 0.0
 	seen := map[string]bool{}
 	for _, n := range names {
@@ -216,7 +225,7 @@ func legendRows(names []string, width float64) int {
 			continue
 		}
 		seen[n] = true
-		w := min(textWidth(n, legendSize), legendTextMax) + legendIconRoom
+		w := min(textWidth(n, legendSize), most) + legendIconRoom
 		if x > 0 && x+w > width {
 			rows++
 			x = 0

@@ -42,10 +42,11 @@ type chartOption struct {
 // chartNarrow pixels its layout assumes, and a title that fits one line
 // there was cut at both sides. A chart whose title or subtitle would
 // wrap otherwise at narrowText carries that layout as the library's
-// media query below chartNarrow (each line within narrowText, the plot
-// moved down by the lines added, the chart's element taller by as much,
-// data-narrow), and the usual layout as the default the chart returns to;
-// a chart whose text fits both widths has no media option.
+// media query below the narrowest step it changes at (each line within
+// narrowText, the plot moved down by the lines added, the chart's element
+// taller by as much, data-narrow), and the usual layout as the default
+// the chart returns to; a chart whose text fits every width has no media
+// option.
 func TestNarrowChartsWrapTitles(t *testing.T) {
 	xs := make([]float64, chartPoints)
 	for i := range xs {
@@ -61,15 +62,20 @@ func TestNarrowChartsWrapTitles(t *testing.T) {
 			t.Fatal(err)
 		}
 		if f == short {
-			if len(opt.Media) != 0 || c.narrow != 0 {
-				t.Errorf("short title: media %+v, narrow height %d", opt.Media, c.narrow)
+			if len(opt.Media) != 0 || c.narrow != nil {
+				t.Errorf("short title: media %+v, narrow heights %v", opt.Media, c.narrow)
 			}
 			continue
 		}
-		if len(opt.Media) != 2 || opt.Media[0].Query != nil || opt.Media[1].Query == nil || opt.Media[1].Query.MaxWidth != chartNarrow-1 {
-			t.Fatalf("media %+v, want the usual layout and the narrow one below %d pixels", opt.Media, chartNarrow)
+		if len(c.narrow) == 0 || len(opt.Media) != 1+len(c.narrow) || opt.Media[0].Query != nil || c.narrow[0].below != chartNarrow {
+			t.Fatalf("media %+v, steps %+v: want the usual layout and narrow ones from %d pixels down", opt.Media, c.narrow, chartNarrow)
 		}
-		wide, narrow := opt.Media[0].Option, opt.Media[1].Option
+		for i, s := range c.narrow {
+			if q := opt.Media[1+i].Query; q == nil || q.MaxWidth != s.below-1 {
+				t.Errorf("media %d: query %+v, want below %d", 1+i, q, s.below)
+			}
+		}
+		wide, narrow := opt.Media[0].Option, opt.Media[len(opt.Media)-1].Option
 		if wide.Title.Text != opt.Title.Text || wide.Title.Subtext != opt.Title.Subtext || wide.Grid[0].Top != opt.Grid[0].Top {
 			t.Errorf("the default media %+v is not the chart's layout %+v", wide, opt)
 		}
@@ -90,8 +96,8 @@ func TestNarrowChartsWrapTitles(t *testing.T) {
 		added := (len(tl)-1)*titleLine + (len(sl)-len(strings.Split(opt.Title.Subtext, "\n")))*subtitleLine
 		top, _ := strconv.Atoi(opt.Grid[0].Top)
 		ntop, _ := strconv.Atoi(narrow.Grid[0].Top)
-		if ntop-top != added || c.narrow-c.height != added {
-			t.Errorf("narrow plot top %d (usual %d), height %d (usual %d): want both %d more", ntop, top, c.narrow, c.height, added)
+		if h := c.narrow[len(c.narrow)-1].height; ntop-top != added || h-c.height != added {
+			t.Errorf("narrow plot top %d (usual %d), height %d (usual %d): want both %d more", ntop, top, h, c.height, added)
 		}
 		d := &doc{}
 		d.parts = append(d.parts, part{charts: []*chart{c}})
@@ -99,11 +105,11 @@ func TestNarrowChartsWrapTitles(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if want := `id="chart-1" style="height:` + strconv.Itoa(c.height) + `px" data-narrow="` + strconv.Itoa(c.narrow) + `"`; !strings.Contains(string(h), want) {
+		if want := `id="chart-1" style="height:` + strconv.Itoa(c.height) + `px" data-narrow="` + heights(c.narrow) + `"`; !strings.Contains(string(h), want) {
 			t.Errorf("report.html has no %s", want)
 		}
-		if !strings.Contains(string(h), "el.clientWidth<"+strconv.Itoa(chartNarrow)+"?") {
-			t.Errorf("the page's script does not take the narrow height below %d pixels", chartNarrow)
+		if !strings.Contains(string(h), `if(el.clientWidth<+p[0]){h=p[1]+"px";}`) {
+			t.Errorf("the page's script does not take the narrow heights")
 		}
 	}
 }
@@ -112,12 +118,15 @@ func TestNarrowChartsWrapTitles(t *testing.T) {
 // names its y axis beside the axis, so its plot leaves no room above for
 // the name, as the charts naming theirs above do, and takes that room
 // itself: it starts yNameRoom higher than the chart of predicted
-// probabilities beside it, with the same title, and the two charts are
-// equally high, so that their x axes line up.
+// probabilities beside it, with the same title, and its plot ends where
+// that one's does, so that their x axes line up. Its legend stands beside
+// the plot, so it leaves no strip below the plot for one: it is
+// legendStrip pixels shorter.
 func TestCumulativeChartTakesNameRoom(t *testing.T) {
 	files := renderPlan(t, goldenPlan, 2)
 	h := string(files["report.html"])
-	prob := map[string]int{} // title: plot top of the prediction chart
+	type layout struct{ top, plotEnd, height int }
+	prob := map[string]layout{} // title: layout of the prediction chart
 	pairs := 0
 	for _, c := range drawCall.FindAllStringSubmatch(h, -1) {
 		var opt chartOption
@@ -125,10 +134,12 @@ func TestCumulativeChartTakesNameRoom(t *testing.T) {
 			t.Fatal(err)
 		}
 		top, _ := strconv.Atoi(opt.Grid[0].Top)
+		bottom, _ := strconv.Atoi(opt.Grid[0].Bottom)
 		height := chartHeight(t, h, c[1])
+		l := layout{top, height - bottom, height}
 		rest, ok := strings.CutPrefix(opt.Title.Text, "Predicted probabilities by ")
 		if ok {
-			prob[rest] = top*10000 + height
+			prob[rest] = l
 			continue
 		}
 		rest, ok = strings.CutPrefix(opt.Title.Text, "Cumulative probabilities by ")
@@ -140,8 +151,8 @@ func TestCumulativeChartTakesNameRoom(t *testing.T) {
 			t.Fatalf("%s: no chart of predicted probabilities before it", c[1])
 		}
 		pairs++
-		if top != p/10000-yNameRoom || height != p%10000 {
-			t.Errorf("%s: plot top %d, height %d; the predicted probabilities' %d, %d: want %d lower top, same height", c[1], top, height, p/10000, p%10000, yNameRoom)
+		if want := (layout{p.top - yNameRoom, p.plotEnd, p.height - legendStrip}); l != want {
+			t.Errorf("%s: plot top, end and chart height %v; the predicted probabilities' %v: want %v", c[1], l, p, want)
 		}
 	}
 	if pairs == 0 {
@@ -230,5 +241,141 @@ func TestCalibrationLegendGroupsCategories(t *testing.T) {
 	}
 	if e, o := calibrationMarks([]string{"low", "expected"}); e == "expected" || o == "observed" {
 		t.Errorf("a category named expected: marks %q, %q", e, o)
+	}
+}
+
+// stepAt is the narrow layout a chart w pixels wide takes: the last step
+// it is narrower than, as the library applies the media queries in order
+// and the page's script picks the height (nil: the usual layout).
+func stepAt(steps []narrowStep, w int) *narrowStep {
+	var at *narrowStep
+	for i := range steps {
+		if w < steps[i].below {
+			at = &steps[i]
+		}
+	}
+	return at
+}
+
+// TestNarrowLegendRowsFollowWidth: a legend at the bottom takes the rows
+// its entries make at the width the chart has, not at the narrowest a
+// phone gives it: on a screen of 400 pixels (a chart of 350) the entries
+// of the calibration chart make two rows where a chart of 310 (a screen
+// of 360) needs three, and the plot's bottom margin and the chart's
+// height leave room for two there, three at 310, so that the x axis's
+// name does not stand a row's height above the legend, nor a legend is
+// cut at 360.
+func TestNarrowLegendRowsFollowWidth(t *testing.T) {
+	legend := []string{"very_unsafe", "unsafe", "neutral", "safe", "very_safe", "expected", "observed"}
+	at := func(chart int) int { return legendRows(legend, float64(chart-chartPadding), legendTextMax) }
+	if at(350) != 2 || at(310) != 3 {
+		t.Fatalf("the entries make %d rows at 350 pixels and %d at 310, want 2 and 3", at(350), at(310))
+	}
+	f := &chartFrame{id: "chart-1", title: "Observed and expected", height: 420, grid: predictionGrid, legend: legend}
+	xs := []float64{1, 2, 3}
+	c := newChart(f, "", newLineChart(f, xs))
+	var opt chartOption
+	if err := json.Unmarshal([]byte(c.option), &opt); err != nil {
+		t.Fatal(err)
+	}
+	base, _ := strconv.Atoi(predictionGrid.Bottom)
+	usual := f.height - (at(chartTextWidth+chartPadding)-1)*legendRow // the height with a one-row legend
+	// The chart widths tried, each with the narrowest width of its step.
+	for _, w := range [][2]int{{479, 400}, {400, 400}, {399, 350}, {350, 350}, {349, 310}, {310, 310}} {
+		bottom, height := opt.Grid[0].Bottom, c.height
+		if s := stepAt(c.narrow, w[0]); s != nil {
+			bottom, height = s.option.Grid[0].Bottom, s.height
+		}
+		rows := at(w[1])
+		if want := strconv.Itoa(base + (rows-1)*legendRow); bottom != want || height != usual+(rows-1)*legendRow {
+			t.Errorf("%d px: plot bottom %s, height %d; want %d rows: bottom %s, height %d", w[0], bottom, height, rows, want, usual+(rows-1)*legendRow)
+		}
+		if rows < at(w[0]) {
+			t.Errorf("%d px: %d rows, fewer than the legend takes", w[0], rows)
+		}
+	}
+	// The media option lists the usual layout and each step in order.
+	if len(opt.Media) != 1+len(c.narrow) {
+		t.Fatalf("%d media entries for %d steps", len(opt.Media), len(c.narrow))
+	}
+	for i, s := range c.narrow {
+		if q := opt.Media[1+i].Query; q == nil || q.MaxWidth != s.below-1 || opt.Media[1+i].Option.Grid[0].Bottom != s.option.Grid[0].Bottom {
+			t.Errorf("media %d: %+v, want below %d with bottom %s", 1+i, opt.Media[1+i], s.below, s.option.Grid[0].Bottom)
+		}
+	}
+}
+
+// TestCumulativeLegendBelowWhenNarrow: the chart of cumulative
+// probabilities has its legend beside the plot at its usual width, and
+// below it in a chart narrower than chartNarrow, as the chart of predicted
+// probabilities beside it does: one horizontal row from the left, the
+// lowest category first, the plot's right margin that chart's, and the
+// chart as high as that one at each width, so that their plots keep the
+// same size. The usual layout, which the library returns to as the chart
+// widens, puts the legend back beside the plot.
+func TestCumulativeLegendBelowWhenNarrow(t *testing.T) {
+	files := renderPlan(t, goldenPlan, 2)
+	h := string(files["report.html"])
+	type legend struct {
+		Orient, Left, Right, Top, Bottom string
+		Data                             []string
+	}
+	type layout struct {
+		Grid []struct {
+			Bottom, Right string
+		}
+		Legend *legend
+	}
+	var cum struct {
+		layout
+		Media []struct {
+			Query *struct {
+				MaxWidth int `json:"maxWidth"`
+			}
+			Option layout
+		}
+	}
+	heightsOf := func(id string) string {
+		_, rest, _ := strings.Cut(h, `id="`+id+`" `)
+		_, rest, _ = strings.Cut(rest, `data-narrow="`)
+		return rest[:strings.Index(rest, `"`)]
+	}
+	prev, pairs := "", 0
+	for _, c := range drawCall.FindAllStringSubmatch(h, -1) {
+		if !strings.Contains(c[2], `"text":"Cumulative probabilities by `) {
+			prev = c[1]
+			continue
+		}
+		pairs++
+		if err := json.Unmarshal([]byte(c[2]), &cum); err != nil {
+			t.Fatal(err)
+		}
+		if got, want := heightsOf(c[1]), heightsOf(prev); got != want {
+			t.Errorf("%s: narrow heights %q, the predicted probabilities' (%s) %q", c[1], got, prev, want)
+		}
+		if len(cum.Media) < 2 || cum.Media[0].Option.Legend == nil || cum.Media[0].Option.Legend.Orient != "vertical" || cum.Media[0].Option.Legend.Right != "0" ||
+			cum.Media[0].Option.Grid[0].Right != cum.Grid[0].Right || cum.Media[0].Option.Grid[0].Bottom != cum.Grid[0].Bottom {
+			t.Fatalf("%s: the usual layout %+v does not put the legend back beside the plot (%+v)", c[1], cum.Media, cum.layout)
+		}
+		wide := cum.Media[0].Option.Legend.Data
+		for _, m := range cum.Media[1:] {
+			l := m.Option.Legend
+			if l == nil || l.Orient != "horizontal" || l.Bottom != "0" || l.Left != "center" || l.Right != "auto" || l.Top != "auto" {
+				t.Errorf("%s below %d: legend %+v, want below the plot", c[1], m.Query.MaxWidth+1, l)
+				continue
+			}
+			if m.Option.Grid[0].Right != predictionGrid.Right {
+				t.Errorf("%s below %d: plot's right margin %s, want %s", c[1], m.Query.MaxWidth+1, m.Option.Grid[0].Right, predictionGrid.Right)
+			}
+			for i, n := range l.Data {
+				if n != wide[len(wide)-1-i] {
+					t.Errorf("%s below %d: legend %v, want the lowest category first (beside the plot: %v)", c[1], m.Query.MaxWidth+1, l.Data, wide)
+					break
+				}
+			}
+		}
+	}
+	if pairs == 0 {
+		t.Fatal("no chart of cumulative probabilities in the golden report")
 	}
 }

@@ -352,7 +352,7 @@ func cumulativeChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 	grid.Left = "40" // room for the y axis's name, turned beside the axis (a long one over the axis would meet the subtitle)
 	right := 40 + int(math.Ceil(widest))
 	grid.Right = strconv.Itoa(right)
-	fr := d.frame(chartFrame{title: title, subtitle: sub, height: 420, grid: grid, legend: legend, legendRight: true, yNameBeside: true})
+	fr := d.frame(chartFrame{title: title, subtitle: sub, height: 420, grid: grid, legend: legend, legendRight: true, rightBelow: predictionGrid.Right, yNameBeside: true})
 	l.SetGlobalOptions(append(fr.opts(),
 		charts.WithXAxisOpts(focusAxis(pf.axis)),
 		charts.WithYAxisOpts(opts.YAxis{Name: "cumulative probability", Type: "value", Min: 0, Max: 1, NameLocation: "middle", NameGap: 32}),

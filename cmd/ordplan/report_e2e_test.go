@@ -9,6 +9,7 @@ import (
 	"os/exec"
 	"path/filepath"
 	"regexp"
+	"strconv"
 	"strings"
 	"testing"
 	"time"
@@ -203,8 +204,10 @@ func TestReportRendersInBrowser(t *testing.T) {
 }
 
 // TestReportAtPhoneWidth opens the example's report.html in headless
-// Chromium 400 pixels wide, as a phone shows it: every chart is drawn, a
-// chart whose titles wrap at that width takes its narrow height
+// Chromium 400 pixels wide, as a phone shows it (the page is dumped at
+// headless Chromium's least window width, 500, whatever smaller is
+// asked): every chart is drawn, a chart whose layout changes below its
+// width takes the narrow height of the narrowest step it is narrower than
 // (data-narrow, which keeps its plot's size), the others keep theirs, and
 // a table wider than the screen is marked as scrolling sideways (the note
 // above it and the faded edge), while a narrow table is not; at 1400
@@ -212,7 +215,7 @@ func TestReportRendersInBrowser(t *testing.T) {
 // The calibration chart's tooltip names each series whole.
 func TestReportAtPhoneWidth(t *testing.T) {
 	dir, _, page := browserExample(t)
-	chartTag := regexp.MustCompile(`<div class="chart" id="(chart-\d+)" style="height: ?(\d+)px[^"]*"( data-narrow="(\d+)")?[^>]*>`)
+	chartTag := regexp.MustCompile(`<div class="chart" id="(chart-\d+)" style="height: ?(\d+)px[^"]*"( data-narrow="([\d: ]+)")?[^>]*><div style="position: relative; width: (\d+)px`)
 	wraps := regexp.MustCompile(`<div class="table-wrap( [^"]*)?">`)
 	for _, width := range []int{400, 1400} {
 		dom, _ := chromium(t, filepath.Join(dir, fmt.Sprint("profile", width)), page, "--dump-dom", fmt.Sprintf("--window-size=%d,3000", width))
@@ -229,13 +232,25 @@ func TestReportAtPhoneWidth(t *testing.T) {
 			if m[4] == "" {
 				continue
 			}
-			if width == 400 {
-				narrowed++
-				if m[2] != m[4] {
-					t.Errorf("%d px: %s is %s px high, want its narrow height %s", width, m[1], m[2], m[4])
+			// data-narrow: "WIDTH:HEIGHT ..." from the widest; the chart
+			// takes the height of the narrowest step wider than it is (the
+			// library's canvas box gives its width), its usual one if none.
+			chartWidth, _ := strconv.Atoi(m[5])
+			want, narrows := "", map[string]bool{}
+			for _, st := range strings.Fields(m[4]) {
+				w, h, _ := strings.Cut(st, ":")
+				narrows[h] = true
+				if n, _ := strconv.Atoi(w); chartWidth < n {
+					want = h
 				}
-			} else if m[2] == m[4] {
-				t.Errorf("%d px: %s took its narrow height %s", width, m[1], m[4])
+			}
+			if want != "" {
+				narrowed++
+				if m[2] != want {
+					t.Errorf("%d px: %s is %d px wide and %s px high, want its narrow height %s (%s)", width, m[1], chartWidth, m[2], want, m[4])
+				}
+			} else if narrows[m[2]] {
+				t.Errorf("%d px: %s is %d px wide and took a narrow height (%s)", width, m[1], chartWidth, m[4])
 			}
 		}
 		if charts < 3 || (width == 400 && narrowed == 0) {
