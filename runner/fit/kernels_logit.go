@@ -3,21 +3,17 @@ package fit
 import "math"
 
 // The row kernels of stage, stacked and adjacent models under the logit
-// link with observed derivatives, written straight into the block's
-// columns (as cumulativeKernels for cumulative models), and of binary
-// logit models in sweeps over the block: the values of the general kernel
-// (kernel.eval through blockKernels), bit for bit, without its per-row
-// clearing of a dense gradient and Hessian and their copy into the columns
-// (TestBlockKernelsAsGeneral).
+// link (adjacent ones under every link) with observed derivatives, written
+// straight into the block's columns (as cumulativeKernels for cumulative
+// models), and of binary logit models in sweeps over the block: the
+// values of the general kernel (kernel.eval through blockKernels), bit for
+// bit, without its per-row clearing of a dense gradient and Hessian and
+// their copy into the columns (TestBlockKernelsAsGeneral).
 
-// logitKernels reports whether blockKernels takes tailKernels or
-// adjacentKernels, and runs it.
+// logitKernels reports whether blockKernels takes tailKernels, and runs
+// it.
 func (p *problem) logitKernels(c *coefs, lo, rows, order int, a *acc, s *scratch) (ok, done bool) {
-	if p.ker.link != Logit {
-		return false, false
-	}
-	switch {
-	case p.ker.cmp == Stage || p.ker.cmp == stackedBinary:
+	if p.ker.link == Logit && (p.ker.cmp == Stage || p.ker.cmp == stackedBinary) {
 		return p.tailKernels(c, lo, rows, order, a, s), true
 	}
 	return false, false

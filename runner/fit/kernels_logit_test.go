@@ -137,18 +137,21 @@ func checkAsGeneral(t *testing.T, name string, p *problem, c *coefs, s *scratch,
 // that the search for the largest meets ties), L_m in the hundreds and
 // thousands (exponentials below -700 and 0, relative scores above 0 by
 // rounding), up to 1e15, with weights of 0, and a block of rows not a
-// multiple of adjacentChunk.
+// multiple of adjacentChunk; under every link (the others' psi_m far out
+// from the two tails, clamped).
 func TestAdjacentKernelsFar(t *testing.T) {
-	for _, J := range []int{2, 3, 4, 5, 6, 7, 16} {
-		for _, weighted := range []bool{true, false} {
-			adjacentKernelsFar(t, J, weighted)
+	for _, link := range []Link{Logit, Probit, Cloglog, Loglog, Cauchy} {
+		for _, J := range []int{2, 3, 4, 5, 6, 7, 16} {
+			for _, weighted := range []bool{true, false} {
+				adjacentKernelsFar(t, link, J, weighted)
+			}
 		}
 	}
 }
 
 // adjacentKernelsFar is TestAdjacentKernelsFar with J categories, with
 // weights (zeros among them) or without (the rows' shared weight of one).
-func adjacentKernelsFar(t *testing.T, J int, weighted bool) {
+func adjacentKernelsFar(t *testing.T, link Link, J int, weighted bool) {
 	const n = 1100
 	d := speedData(n, 2, J)
 	rng := rand.New(rand.NewPCG(29, uint64(J)))
@@ -159,7 +162,7 @@ func adjacentKernelsFar(t *testing.T, J int, weighted bool) {
 			d.Weights[i] = []float64{0, 0.5, 1, 2}[rng.IntN(4)]
 		}
 	}
-	m := Model{Comparison: Adjacent, Link: Logit, Effects: []Effect{Nonparallel, Nonparallel}}
+	m := Model{Comparison: Adjacent, Link: link, Effects: []Effect{Nonparallel, Nonparallel}}
 	p, theta := atMarginalCutpoints(t, d, m)
 	c := p.coefs(theta)
 	for order := 0; order <= 2; order++ {
@@ -189,8 +192,8 @@ func adjacentKernelsFar(t *testing.T, J int, weighted bool) {
 		}
 		a := p.newAcc(0)
 		if !p.blockKernels(c, 0, n, order, false, a, s) {
-			t.Fatalf("J=%d weighted %t order %d: kernel failed", J, weighted, order)
+			t.Fatalf("%s J=%d weighted %t order %d: kernel failed", link, J, weighted, order)
 		}
-		checkAsGeneral(t, fmt.Sprintf("far J=%d weighted %t order %d", J, weighted, order), p, c, s, d, order, a)
+		checkAsGeneral(t, fmt.Sprintf("%s far J=%d weighted %t order %d", link, J, weighted, order), p, c, s, d, order, a)
 	}
 }
