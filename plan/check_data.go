@@ -140,8 +140,9 @@ func lookedFor(path, file string) string {
 }
 
 // unreadableFile gives what makes the file at path no data file at all
-// ("is empty (...)", "is a folder, not a regular file: ...", "is
-// gzip-compressed; ..."), when err is the reader's saying so.
+// ("is empty (...)", "has a header line and no data rows after it", "is a
+// folder, not a regular file: ...", "is gzip-compressed; ..."), when err
+// is the reader's saying so.
 func unreadableFile(err error) (string, bool) {
 	var de *data.Error
 	if !errors.As(err, &de) || de.Line != 0 {
@@ -150,6 +151,8 @@ func unreadableFile(err error) (string, bool) {
 	switch {
 	case errors.Is(err, data.ErrEmptyFile):
 		return strings.TrimPrefix(de.Msg, "file "), true
+	case errors.Is(err, data.ErrNoRows):
+		return "has a header line and no data rows after it", true
 	case errors.Is(err, data.ErrNotRegular), errors.Is(err, data.ErrFileFormat):
 		return de.Msg, true
 	}
@@ -159,8 +162,9 @@ func unreadableFile(err error) (string, bool) {
 // fileProblem reports at key a file the plan names there (file, looked
 // for at path; what: "the data file", "the part", ...) that err, the
 // reader's failure to read its header, says cannot be opened or is no
-// data file at all (unreadableFile: empty, not a regular file, not in a
-// form ordplan reads); it says whether it did. Other problems are the
+// data file at all (unreadableFile: empty, a header alone where rows are
+// needed, not a regular file, not in a form ordplan reads); it says
+// whether it did. Other problems are the
 // reader's to name, at the file's line.
 func (d *decoder) fileProblem(key, what, file, path string, err error) bool {
 	if where, reason, unopened := notOpened(err, path, file); unopened {
@@ -176,16 +180,16 @@ func (d *decoder) fileProblem(key, what, file, path string, err error) bool {
 
 // checkOtherFiles checks the other files the plan names, the imputed
 // sets (data.imputed.file, data.imputed.files) and the new rows
-// (inference.predict), as data.file is checked: one that cannot be opened
-// or is no data file at all is reported at its key (fileProblem), before
-// anything is read.
+// (inference.predict), as data.file is checked: one that cannot be opened,
+// is no data file at all or has a header and no data rows is reported at
+// its key (fileProblem), before anything is read.
 func (d *decoder) checkOtherFiles(p *Plan) {
 	dl := p.Data.Dialect()
 	check := func(key, what, file, path string) {
 		if file == "" || path == "" || !d.clean(key) {
 			return
 		}
-		if _, err := data.HeaderDialect(path, dl); err != nil {
+		if _, err := data.HeaderWithRows(path, dl); err != nil {
 			d.fileProblem(key, what, file, path, err)
 		}
 	}

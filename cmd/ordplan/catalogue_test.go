@@ -537,6 +537,15 @@ func datesParquet(t *testing.T) []byte {
 	return b.Bytes()
 }
 
+// outArgs are the arguments of ordplan cmd on plan: run writes to the
+// folder out, which check has no use for.
+func outArgs(cmd, plan, out string) []string {
+	if cmd == "run" {
+		return []string{cmd, plan, "--out", out}
+	}
+	return []string{cmd, plan}
+}
+
 // copyFile copies the file from to the path to.
 func copyFile(t *testing.T, from, to string) {
 	t.Helper()
@@ -1725,6 +1734,21 @@ func catalogue(dir string) (items []badInput) {
 						t.Errorf("%s: exit %d, want %q in\n%s", cmd, code, want, e)
 					}
 				}
+				// A header and no rows, in a set of its own or in the file of
+				// stacked sets: at the key too, by check and run.
+				for _, c := range []struct{ imputed, want string }{
+					{"\n    files: [d.csv, header.csv]", `:5:20: data.imputed.files[1]: imputed set 2 "header.csv" (looked for ` + filepath.Join(dir, "header.csv") + `) has a header line and no data rows after it`},
+					{" {file: header.csv, column: imp}", `:4:19: data.imputed.file: the file of imputed sets "header.csv" (looked for ` + filepath.Join(dir, "header.csv") + `) has a header line and no data rows after it`},
+				} {
+					if err := os.WriteFile(plan, []byte(edit("file: d.csv", "file: d.csv\n  imputed:"+c.imputed)), 0o644); err != nil {
+						t.Fatal(err)
+					}
+					for _, cmd := range []string{"check", "run"} {
+						if _, e, code := runCLI(outArgs(cmd, plan, filepath.Join(dir, "I26-out"))...); code != 1 || !strings.Contains(e, plan+c.want) {
+							t.Errorf("%s, a header alone: exit %d, want %q in\n%s", cmd, code, plan+c.want, e)
+						}
+					}
+				}
 			}},
 		{id: "T38", name: "new rows to predict (inference.predict) in a file that is empty, or not a data file: at the key", args: []string{"check"}, plan: edit("  - choose: {by: aic}\n", "  - choose: {by: aic}\ninference:\n  predict: empty.csv\n"), code: 1,
 			want: []string{`T38.yaml:15:12: inference.predict: the file of new rows "empty.csv" (looked for empty.csv) is empty (a header line naming the columns is needed)`},
@@ -1736,6 +1760,17 @@ func catalogue(dir string) (items []badInput) {
 				want := plan + `:15:12: inference.predict: the file of new rows "parts" (looked for ` + filepath.Join(dir, "parts") + `) is a folder, not a regular file`
 				if _, e, code := runCLI("run", plan, "--out", filepath.Join(dir, "T38-out")); code != 1 || !strings.Contains(e, want) {
 					t.Errorf("run: exit %d, want %q in\n%s", code, want, e)
+				}
+				// A header and no rows: at the key too, by check and run.
+				plan = filepath.Join(dir, "T38header.yaml")
+				if err := os.WriteFile(plan, []byte(edit("  - choose: {by: aic}\n", "  - choose: {by: aic}\ninference:\n  predict: header.csv\n")), 0o644); err != nil {
+					t.Fatal(err)
+				}
+				want = plan + `:15:12: inference.predict: the file of new rows "header.csv" (looked for ` + filepath.Join(dir, "header.csv") + `) has a header line and no data rows after it`
+				for _, cmd := range []string{"check", "run"} {
+					if _, e, code := runCLI(outArgs(cmd, plan, filepath.Join(dir, "T38-out"))...); code != 1 || !strings.Contains(e, want) {
+						t.Errorf("%s, a header alone: exit %d, want %q in\n%s", cmd, code, want, e)
+					}
 				}
 			}},
 		{id: "X2", name: "CSV text named .xlsx", args: fitArgs(d("notzip.xlsx"), "--predictors", "a,b"), code: 1,

@@ -9,9 +9,10 @@ import (
 	"unicode/utf8"
 )
 
-// ErrEmptyFile, ErrNotRegular and ErrFileFormat are the Err of the Error
-// of a file that holds nothing (not even a header line), of a path that is
-// not a regular file (CheckRegular), and of a file that as a whole is not
+// ErrEmptyFile, ErrNotRegular, ErrFileFormat and ErrNoRows are the Err of
+// the Error of a file that holds nothing (not even a header line), of a
+// path that is not a regular file (CheckRegular), of a file whose header
+// no data row follows (HeaderWithRows), and of a file that as a whole is not
 // in a form ordplan reads (compressed, an archive, binary or UTF-16 text,
 // a workbook or Parquet file that is broken or cut short: sniff,
 // workbookFormat, openParquet): the plan's check names the key of the
@@ -21,6 +22,7 @@ var (
 	ErrEmptyFile  = errors.New("file is empty")
 	ErrNotRegular = errors.New("not a regular file")
 	ErrFileFormat = errors.New("not in a form ordplan reads")
+	ErrNoRows     = errors.New("no data rows after the header")
 )
 
 // formats is what ordplan reads, for the messages of a file in another

@@ -226,3 +226,23 @@ func TestPinLargeFile(t *testing.T) {
 		t.Fatalf("ReadFile: got %v, want %s", err, want)
 	}
 }
+
+// HeaderWithRows: a header that no data row follows, blank lines aside, is
+// ErrNoRows; one data row, or a first row the reader of rows will refuse
+// at its line, is not.
+func TestHeaderWithRows(t *testing.T) {
+	dir := t.TempDir()
+	for _, c := range []struct {
+		text string
+		none bool
+	}{{"a,b\n", true}, {"a,b\n,\n\n", true}, {"a,b\n1,2\n", false}, {"a,b\n\"1,2\n", false}} {
+		path := filepath.Join(dir, "f.csv")
+		if err := os.WriteFile(path, []byte(c.text), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		names, err := HeaderWithRows(path, Dialect{})
+		if got := errors.Is(err, ErrNoRows); got != c.none || (!c.none && (err != nil || len(names) != 2)) {
+			t.Errorf("%q: names %q, error %v", c.text, names, err)
+		}
+	}
+}

@@ -319,6 +319,35 @@ func HeaderDialect(path string, d Dialect) ([]string, error) {
 	return readHeader(f, path, d)
 }
 
+// HeaderWithRows is HeaderDialect for a file that needs data rows: a
+// header that no data row follows (blank lines aside) is an Error whose
+// Err is ErrNoRows. A broken first row is left to the reader of the rows,
+// which names its line.
+func HeaderWithRows(path string, d Dialect) ([]string, error) {
+	f, err := openData(path)
+	if err != nil {
+		return nil, err
+	}
+	defer f.Close()
+	r := &reader{file: path, opt: Options{Dialect: d}}
+	if err := r.start(f); err != nil {
+		return nil, err
+	}
+	names, _, err := r.names()
+	if err != nil {
+		return nil, err
+	}
+	for {
+		rec, err := r.cr.Read()
+		if err == io.EOF {
+			return nil, &Error{File: path, Msg: "no data rows after the header", Err: ErrNoRows}
+		}
+		if err != nil || !blankRow(rec) {
+			return names, nil
+		}
+	}
+}
+
 // ReadHeader is Header for a reader; name is used in messages.
 func ReadHeader(in io.Reader, name string) ([]string, error) {
 	return readHeader(in, name, Dialect{})
