@@ -451,7 +451,9 @@ func (a *Analysis) Load(r Reading) (*Loaded, error) {
 // against the rows used (a declared level or the reference that no row
 // has, one level alone: design.Error.Levels), ending, when more rows were
 // dropped than kept, with why so few remain (Dataset.FewRowsSentence), as
-// the other refusals counting the rows used do; any other err as it is.
+// the other refusals counting the rows used do, and then its advice (If
+// these are the rows meant, ...), which follows the explanation; any other
+// err as it is.
 func levelsAfterLoss(err error, ds *data.Dataset) error {
 	var de *design.Error
 	few := ds.FewRowsSentence()
@@ -460,6 +462,10 @@ func levelsAfterLoss(err error, ds *data.Dataset) error {
 	}
 	e := *de
 	e.Msg += ". " + few
+	if e.Fix != "" {
+		e.Msg += ". If these are the rows meant, " + e.Fix
+		e.Fix = ""
+	}
 	return &e
 }
 

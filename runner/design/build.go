@@ -86,6 +86,10 @@ type Error struct {
 	// rows used (a level or the reference that no row has, one level
 	// alone), which a plan names where it declares them.
 	Levels bool
+	// Fix, when set, is what to do about it, written after Msg ("; "); a
+	// refusal that goes on to say why so few rows remain puts it after
+	// that instead (runner's levelsAfterLoss).
+	Fix string
 }
 
 func (e *Error) Error() string {
@@ -100,6 +104,9 @@ func (e *Error) Error() string {
 		fmt.Fprintf(&b, "column %q: ", e.Column)
 	}
 	b.WriteString(e.Msg)
+	if e.Fix != "" {
+		b.WriteString("; " + e.Fix)
+	}
 	return b.String()
 }
 
@@ -284,7 +291,7 @@ func (d *Design) buildCategorical(t *Term, src Source, v, w []float64, fz *TermR
 		}
 		switch {
 		case name == ref:
-			return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("the reference level %q occurs in no row used; choose another reference", name), Levels: true}
+			return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("the reference level %q occurs in no row used", name), Fix: "choose another reference", Levels: true}
 		case c.Unobserved == UnobservedDrop:
 			t.Dropped = append(t.Dropped, name)
 			asked := t.Key
@@ -293,7 +300,8 @@ func (d *Design) buildCategorical(t *Term, src Source, v, w []float64, fz *TermR
 			}
 			d.Notes = append(d.Notes, fmt.Sprintf("Level %q of %s occurs in no row used; its column was dropped, as asked (%s).", name, src.Name, asked))
 		default:
-			return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("level %q is declared but occurs in no row used; remove it from the levels, or have its column dropped (in a plan unobserved: drop, in ordplan fit |drop)", name), Levels: true}
+			return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("level %q is declared but occurs in no row used", name),
+				Fix: "remove it from the levels, or have its column dropped (in a plan unobserved: drop, in ordplan fit |drop)", Levels: true}
 		}
 	}
 	if len(keptIdx) < 2 {
