@@ -37,8 +37,9 @@ func (d *decoder) checkDataColumns(p *Plan) {
 }
 
 // checkParts checks the parts of data.parts: every pattern matches a
-// file, no file is listed twice, every part opens and has the columns of
-// the first; it returns the first part's header.
+// file, no file is listed twice, every part opens, has data rows
+// (fileProblem) and has the columns of the first; it returns the first
+// part's header.
 func (d *decoder) checkParts(p *Plan) ([]string, bool) {
 	if !d.clean("data.parts") || len(p.Data.PartPaths) == 0 {
 		return nil, false
@@ -51,7 +52,7 @@ func (d *decoder) checkParts(p *Plan) ([]string, bool) {
 	var first []string
 	for i, path := range p.Data.PartPaths {
 		file := p.Data.PartFiles[i]
-		h, err := data.HeaderDialect(path, p.Data.Dialect())
+		h, err := data.HeaderWithRows(path, p.Data.Dialect())
 		if err != nil {
 			if _, _, unopened := notOpened(err, path, file); unopened && strings.ContainsAny(file, "*?[") {
 				d.errAt("data.parts", "the pattern %s matches no file%s", strconv.Quote(file), lookedFor(path, file))
@@ -180,9 +181,9 @@ func (d *decoder) fileProblem(key, what, file, path string, err error) bool {
 
 // checkOtherFiles checks the other files the plan names, the imputed
 // sets (data.imputed.file, data.imputed.files) and the new rows
-// (inference.predict), as data.file is checked: one that cannot be opened,
-// is no data file at all or has a header and no data rows is reported at
-// its key (fileProblem), before anything is read.
+// (inference.predict), as data.file and the parts are checked: one that
+// cannot be opened, is no data file at all or has a header and no data
+// rows is reported at its key (fileProblem), before anything is read.
 func (d *decoder) checkOtherFiles(p *Plan) {
 	dl := p.Data.Dialect()
 	check := func(key, what, file, path string) {
@@ -207,12 +208,13 @@ func (d *decoder) checkOtherFiles(p *Plan) {
 }
 
 // dataHeader reads the header of data.file, reporting a file that cannot
-// be opened and a dialect that does not fit it.
+// be opened, has no data rows after its header (fileProblem) or is in a
+// dialect that does not fit it.
 func (d *decoder) dataHeader(p *Plan) ([]string, bool) {
 	if p.Data.Path == "" || !d.clean("data.file") {
 		return nil, false
 	}
-	header, err := data.HeaderDialect(p.Data.Path, p.Data.Dialect())
+	header, err := data.HeaderWithRows(p.Data.Path, p.Data.Dialect())
 	if err != nil {
 		if !d.fileProblem("data.file", "the data file", p.Data.File, p.Data.Path, err) {
 			d.reportDialect(p.Data.Path, "data file "+p.Data.File, p.Data.Dialect())

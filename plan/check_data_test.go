@@ -25,6 +25,7 @@ func TestLoadChecksColumnsAgainstData(t *testing.T) {
 	}
 	write("d.csv", "\uFEFFy, a ,b,w,off,grp\n1,2,3,1,0,g\n")
 	write("empty.csv", "")
+	write("header.csv", "y,a,b\n\n")
 	write("dup.csv", "y,a,a\n1,2,3\n")
 	write("semi.csv", "y;a;b;w;off;grp\n1;2,5;3,25;1;0;g\n2;1,5;4,75;1;0;h\n")
 	good := `version: 1
@@ -65,12 +66,16 @@ rules:
 			[]string{`p.yaml:3:10: data.parts: cannot open the part "sub/none.csv" (looked for ` + filepath.Join(dir, "sub", "none.csv") + `): no such file or directory`}},
 		{"empty part", "file: d.csv", "parts: [d.csv, empty.csv]",
 			[]string{`p.yaml:3:10: data.parts: the part "empty.csv" (looked for ` + filepath.Join(dir, "empty.csv") + `) is empty (a header line naming the columns is needed)`}},
+		{"part with a header alone", "file: d.csv", "parts: [d.csv, header.csv]",
+			[]string{`p.yaml:3:10: data.parts: the part "header.csv" (looked for ` + filepath.Join(dir, "header.csv") + `) has a header line and no data rows after it`}},
 		{"part in another dialect", "file: d.csv", "parts: [semi.csv]",
 			[]string{`data.delimiter: data part semi.csv: the file looks semicolon-separated with a decimal comma`}},
 		// A file that is no data file at all (empty, a folder) is said at
 		// data.file, as one that cannot be opened.
 		{"empty data file", "file: d.csv", "file: empty.csv",
 			[]string{`p.yaml:3:9: data.file: the data file "empty.csv" (looked for ` + filepath.Join(dir, "empty.csv") + `) is empty (a header line naming the columns is needed)`}},
+		{"data file with a header alone", "file: d.csv", "file: header.csv",
+			[]string{`p.yaml:3:9: data.file: the data file "header.csv" (looked for ` + filepath.Join(dir, "header.csv") + `) has a header line and no data rows after it`}},
 		{"folder as the data file", "file: d.csv", "file: folder",
 			[]string{`p.yaml:3:9: data.file: the data file "folder" (looked for ` + filepath.Join(dir, "folder") + `) is a folder, not a regular file: ordplan reads data from files only (save the data to a file first)`}},
 		// Problems inside the data file are the data reader's: they are
