@@ -57,7 +57,7 @@ func (d *decoder) checkParts(p *Plan) ([]string, bool) {
 			if _, _, unopened := notOpened(err, path, file); unopened && strings.ContainsAny(file, "*?[") {
 				d.errAt("data.parts", "the pattern %s matches no file%s", strconv.Quote(file), lookedFor(path, file))
 				ok = false
-			} else if d.fileProblem("data.parts", "the part", file, path, err) {
+			} else if d.fileProblem("data.parts", "the part", file, path, err, "every part needs rows: leave it out of data.parts") {
 				ok = false
 			}
 			continue // other problems with a part are the reader's to name
@@ -165,14 +165,18 @@ func unreadableFile(err error) (string, bool) {
 // reader's failure to read its header, says cannot be opened or is no
 // data file at all (unreadableFile: empty, a header alone where rows are
 // needed, not a regular file, not in a form ordplan reads); it says
-// whether it did. Other problems are the
-// reader's to name, at the file's line.
-func (d *decoder) fileProblem(key, what, file, path string, err error) bool {
+// whether it did. needRows, when not "", follows the sentence of an
+// empty file or a header alone ("every part needs rows: ..."). Other
+// problems are the reader's to name, at the file's line.
+func (d *decoder) fileProblem(key, what, file, path string, err error, needRows string) bool {
 	if where, reason, unopened := notOpened(err, path, file); unopened {
 		d.errAt(key, "cannot open %s %s%s: %s", what, strconv.Quote(file), where, reason)
 		return true
 	}
 	if why, ok := unreadableFile(err); ok {
+		if needRows != "" && (errors.Is(err, data.ErrEmptyFile) || errors.Is(err, data.ErrNoRows)) {
+			why += "; " + needRows
+		}
 		d.errAt(key, "%s %s%s %s", what, strconv.Quote(file), lookedFor(path, file), why)
 		return true
 	}
@@ -191,7 +195,7 @@ func (d *decoder) checkOtherFiles(p *Plan) {
 			return
 		}
 		if _, err := data.HeaderWithRows(path, dl); err != nil {
-			d.fileProblem(key, what, file, path, err)
+			d.fileProblem(key, what, file, path, err, "")
 		}
 	}
 	// With data.missing: impute the plan's check refuses data.imputed
@@ -216,7 +220,7 @@ func (d *decoder) dataHeader(p *Plan) ([]string, bool) {
 	}
 	header, err := data.HeaderWithRows(p.Data.Path, p.Data.Dialect())
 	if err != nil {
-		if !d.fileProblem("data.file", "the data file", p.Data.File, p.Data.Path, err) {
+		if !d.fileProblem("data.file", "the data file", p.Data.File, p.Data.Path, err, "") {
 			d.reportDialect(p.Data.Path, "data file "+p.Data.File, p.Data.Dialect())
 		}
 		return nil, false

@@ -65,9 +65,9 @@ rules:
 		{"missing part", "file: d.csv", "parts: [d.csv, sub/none.csv]",
 			[]string{`p.yaml:3:10: data.parts: cannot open the part "sub/none.csv" (looked for ` + filepath.Join(dir, "sub", "none.csv") + `): no such file or directory`}},
 		{"empty part", "file: d.csv", "parts: [d.csv, empty.csv]",
-			[]string{`p.yaml:3:10: data.parts: the part "empty.csv" (looked for ` + filepath.Join(dir, "empty.csv") + `) is empty (a header line naming the columns is needed)`}},
+			[]string{`p.yaml:3:10: data.parts: the part "empty.csv" (looked for ` + filepath.Join(dir, "empty.csv") + `) is empty (a header line naming the columns is needed); every part needs rows: leave it out of data.parts`}},
 		{"part with a header alone", "file: d.csv", "parts: [d.csv, header.csv]",
-			[]string{`p.yaml:3:10: data.parts: the part "header.csv" (looked for ` + filepath.Join(dir, "header.csv") + `) has a header line and no data rows after it`}},
+			[]string{`p.yaml:3:10: data.parts: the part "header.csv" (looked for ` + filepath.Join(dir, "header.csv") + `) has a header line and no data rows after it; every part needs rows: leave it out of data.parts`}},
 		{"part in another dialect", "file: d.csv", "parts: [semi.csv]",
 			[]string{`data.delimiter: data part semi.csv: the file looks semicolon-separated with a decimal comma`}},
 		// A file that is no data file at all (empty, a folder) is said at
