@@ -45,19 +45,19 @@ func (d *decoder) checkParts(p *Plan) ([]string, bool) {
 		return nil, false
 	}
 	ok := true
-	for _, msg := range slices.Concat(PartsTwice(p.Data.PartFiles, p.Data.PartPaths), PartsTwins(p.Data.PartFiles, p.Data.PartPaths)) {
-		d.errAt("data.parts", "%s", msg)
+	for _, pp := range slices.Concat(PartsTwice(p.Data.PartFiles, p.Data.PartPaths), PartsTwins(p.Data.PartFiles, p.Data.PartPaths)) {
+		d.errAt(p.Data.PartKey(pp.Part), "%s", pp.Msg)
 		ok = false
 	}
 	var first []string
 	for i, path := range p.Data.PartPaths {
-		file := p.Data.PartFiles[i]
+		file, key := p.Data.PartFiles[i], p.Data.PartKey(i)
 		h, err := data.HeaderWithRows(path, p.Data.Dialect())
 		if err != nil {
 			if _, _, unopened := notOpened(err, path, file); unopened && strings.ContainsAny(file, "*?[") {
-				d.errAt("data.parts", "the pattern %s matches no file%s", strconv.Quote(file), lookedFor(path, file))
+				d.errAt(key, "the pattern %s matches no file%s", strconv.Quote(file), lookedFor(path, file))
 				ok = false
-			} else if d.fileProblem("data.parts", "the part", file, path, err, "every part needs rows: leave it out of data.parts") {
+			} else if d.fileProblem(key, "the part", file, path, err, "every part needs rows: leave it out of data.parts") {
 				ok = false
 			}
 			continue // other problems with a part are the reader's to name
@@ -70,7 +70,7 @@ func (d *decoder) checkParts(p *Plan) ([]string, bool) {
 		} else if first != nil {
 			if data.OtherColumns(first, h) != "" {
 				raw, _ := data.ReadFile(path) // only when the names differ
-				d.errAt("data.parts", "the part %s %s", file, data.PartColumns(first, p.Data.PartFiles[0], h, raw, p.Data.Dialect()))
+				d.errAt(key, "the part %s %s", file, data.PartColumns(first, p.Data.PartFiles[0], h, raw, p.Data.Dialect()))
 				ok = false
 			}
 		}

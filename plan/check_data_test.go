@@ -63,11 +63,18 @@ rules:
 			[]string{`p.yaml:3:9: data.file: cannot open the data file "sub/none.csv" (looked for ` + filepath.Join(dir, "sub", "none.csv") + `): no such file or directory`}},
 		// The checks of data.file, made part by part for data.parts.
 		{"missing part", "file: d.csv", "parts: [d.csv, sub/none.csv]",
-			[]string{`p.yaml:3:10: data.parts: cannot open the part "sub/none.csv" (looked for ` + filepath.Join(dir, "sub", "none.csv") + `): no such file or directory`}},
+			[]string{`p.yaml:3:18: data.parts[1]: cannot open the part "sub/none.csv" (looked for ` + filepath.Join(dir, "sub", "none.csv") + `): no such file or directory`}},
 		{"empty part", "file: d.csv", "parts: [d.csv, empty.csv]",
-			[]string{`p.yaml:3:10: data.parts: the part "empty.csv" (looked for ` + filepath.Join(dir, "empty.csv") + `) is empty (a header line naming the columns is needed); every part needs rows: leave it out of data.parts`}},
+			[]string{`p.yaml:3:18: data.parts[1]: the part "empty.csv" (looked for ` + filepath.Join(dir, "empty.csv") + `) is empty (a header line naming the columns is needed); every part needs rows: leave it out of data.parts`}},
 		{"part with a header alone", "file: d.csv", "parts: [d.csv, header.csv]",
-			[]string{`p.yaml:3:10: data.parts: the part "header.csv" (looked for ` + filepath.Join(dir, "header.csv") + `) has a header line and no data rows after it; every part needs rows: leave it out of data.parts`}},
+			[]string{`p.yaml:3:18: data.parts[1]: the part "header.csv" (looked for ` + filepath.Join(dir, "header.csv") + `) has a header line and no data rows after it; every part needs rows: leave it out of data.parts`}},
+		// A part is named by its entry of the list, a pattern's matches
+		// by the pattern's entry, at the entry's own line and column.
+		{"parts named by their entries", "file: d.csv", "parts:\n    - \"[de]*.csv\"\n    - header.csv",
+			[]string{
+				`p.yaml:4:7: data.parts[0]: the part "empty.csv" (looked for ` + filepath.Join(dir, "empty.csv") + `) is empty`,
+				`p.yaml:5:7: data.parts[1]: the part "header.csv" (looked for ` + filepath.Join(dir, "header.csv") + `) has a header line and no data rows after it`,
+			}},
 		{"part in another dialect", "file: d.csv", "parts: [semi.csv]",
 			[]string{`data.delimiter: data part semi.csv: the file looks semicolon-separated with a decimal comma`}},
 		// A file that is no data file at all (empty, a folder) is said at

@@ -34,6 +34,7 @@ func (d *decoder) decodeData(n *yaml.Node, data *Data) {
 	}
 	if v := m.get("parts"); v != nil && d.nonEmpty(v, "data.parts", "part (a file name or pattern)") {
 		data.Parts, _ = d.names(v, "data.parts")
+		data.PartOf = partEntries(v, data.Parts)
 	}
 	where := m.node
 	if where == nil {
@@ -130,13 +131,31 @@ func (d *decoder) decodeImputation(n *yaml.Node) *Imputation {
 	return im
 }
 
+// partEntries gives the entries of the list n (data.parts) that parts,
+// the names read from it in order (an item refused is left out), are,
+// with their places in the plan.
+func partEntries(n *yaml.Node, parts []string) []PartEntry {
+	n = deref(n)
+	if n == nil || n.Kind != yaml.SequenceNode {
+		return nil
+	}
+	var out []PartEntry
+	for i, it := range n.Content {
+		if it = deref(it); it != nil && len(out) < len(parts) && it.Kind == yaml.ScalarNode && it.Value == parts[len(out)] {
+			out = append(out, PartEntry{Index: i, Line: it.Line, Col: it.Column})
+		}
+	}
+	return out
+}
+
 // ExpandParts resolves data.parts (and ordplan fit --parts, against the
 // working folder): names against the plan's folder, a pattern (with * ? or
 // [) into its matches in name order, named relative to the folder as the
 // pattern is. A pattern that matches nothing stays as written, for
-// checkParts to report.
-func ExpandParts(dir string, parts []string) (files, paths []string) {
-	for _, pat := range parts {
+// checkParts to report. from gives, for each file, the index in parts
+// of the name or pattern it comes from.
+func ExpandParts(dir string, parts []string) (files, paths []string, from []int) {
+	for k, pat := range parts {
 		full := resolveDataPath(dir, pat)
 		var matches []string
 		if strings.ContainsAny(pat, "*?[") {
@@ -144,7 +163,7 @@ func ExpandParts(dir string, parts []string) (files, paths []string) {
 			sort.Strings(matches)
 		}
 		if len(matches) == 0 {
-			files, paths = append(files, pat), append(paths, full)
+			files, paths, from = append(files, pat), append(paths, full), append(from, k)
 			continue
 		}
 		for _, m := range matches {
@@ -154,18 +173,26 @@ func ExpandParts(dir string, parts []string) (files, paths []string) {
 					name = filepath.ToSlash(rel)
 				}
 			}
-			files, paths = append(files, name), append(paths, m)
+			files, paths, from = append(files, name), append(paths, m), append(from, k)
 		}
 	}
-	return files, paths
+	return files, paths, from
+}
+
+// PartProblem is a problem with part Part of a list of parts (data.parts
+// expanded, or ordplan fit --parts).
+type PartProblem struct {
+	Part int
+	Msg  string
 }
 
 // PartsTwice says of each part that the expanded parts (ExpandParts: the
 // files as named and their paths) give more than once how the list gives
-// it, one message a part: data.parts and ordplan fit --parts say it alike.
-func PartsTwice(files, paths []string) []string {
+// it, one problem a part (the later one): data.parts and ordplan fit
+// --parts say it alike.
+func PartsTwice(files, paths []string) []PartProblem {
 	seen := map[string]string{}
-	var out []string
+	var out []PartProblem
 	for i, path := range paths {
 		file := files[i]
 		if prev, dup := seen[path]; dup {
@@ -173,7 +200,7 @@ func PartsTwice(files, paths []string) []string {
 			if prev == file {
 				how = "a pattern and a name, or two patterns, both give it"
 			}
-			out = append(out, fmt.Sprintf("the part %s comes twice from the list (%s); every part is read once", strconv.Quote(file), how))
+			out = append(out, PartProblem{i, fmt.Sprintf("the part %s comes twice from the list (%s); every part is read once", strconv.Quote(file), how)})
 		}
 		seen[path] = file
 	}
@@ -182,13 +209,13 @@ func PartsTwice(files, paths []string) []string {
 
 // PartsTwins says of each part that is an earlier part's file (through a
 // link, or another path to it) or a copy of its bytes (data.Twins) that
-// its rows would be read twice, naming both parts, one message a part:
-// data.parts and ordplan fit --parts say it alike.
-func PartsTwins(files, paths []string) []string {
-	var out []string
+// its rows would be read twice, naming both parts, one problem a part
+// (the later one): data.parts and ordplan fit --parts say it alike.
+func PartsTwins(files, paths []string) []PartProblem {
+	var out []PartProblem
 	for _, t := range data.Twins(paths) {
-		out = append(out, fmt.Sprintf("the parts %s and %s %s, so the same rows would be read twice; every part is read once: leave one of them out (name the parts one by one, or give a pattern that matches only one of them)",
-			strconv.Quote(files[t.First]), strconv.Quote(files[t.Second]), twinHow(t, files)))
+		out = append(out, PartProblem{t.Second, fmt.Sprintf("the parts %s and %s %s, so the same rows would be read twice; every part is read once: leave one of them out (name the parts one by one, or give a pattern that matches only one of them)",
+			strconv.Quote(files[t.First]), strconv.Quote(files[t.Second]), twinHow(t, files))})
 	}
 	return out
 }

@@ -7,7 +7,15 @@ import "ordplan/runner/fit"
 func (d *decoder) applyDefaults(p *Plan) {
 	p.Data.Path = resolveDataPath(p.Dir, p.Data.File)
 	if p.Data.Parts != nil {
-		p.Data.PartFiles, p.Data.PartPaths = ExpandParts(p.Dir, p.Data.Parts)
+		var from []int
+		p.Data.PartFiles, p.Data.PartPaths, from = ExpandParts(p.Dir, p.Data.Parts)
+		entries := p.Data.PartOf
+		p.Data.PartOf = nil
+		if len(entries) == len(p.Data.Parts) {
+			for _, k := range from {
+				p.Data.PartOf = append(p.Data.PartOf, entries[k])
+			}
+		}
 	}
 	if im := p.Data.Imputed; im != nil {
 		im.Path = resolveDataPath(p.Dir, im.File)

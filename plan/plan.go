@@ -65,16 +65,20 @@ type Data struct {
 	// pattern's matches relative to the plan's folder, in name order) and
 	// PartPaths resolved. A pattern that matches nothing stays as written.
 	Parts, PartFiles, PartPaths []string
-	Missing                     string   // "drop" (default), "refuse" or "impute" (MissingImpute)
-	MissingValues               []string // nil = reader default; empty = nothing counts as missing
-	Delimiter                   string   // "comma" (default), "semicolon" or "tab"
-	Decimal                     string   // decimal mark: "point" (default) or "comma"
-	Sheet                       string   // .xlsx worksheet ("" = the one visible sheet with cells)
-	HeaderRow                   int      // .xlsx header row (0 = the first row)
-	Weights                     string   // column, optional
-	WeightKind                  string   // "frequency" (default) or "sampling"
-	Offset                      string   // column, optional
-	Cluster                     string   // column, optional
+	// PartOf gives, for each part of PartFiles, the entry of data.parts
+	// it comes from (a name, or a pattern among whose matches it is):
+	// PartKey and PartWhere name it.
+	PartOf        []PartEntry
+	Missing       string   // "drop" (default), "refuse" or "impute" (MissingImpute)
+	MissingValues []string // nil = reader default; empty = nothing counts as missing
+	Delimiter     string   // "comma" (default), "semicolon" or "tab"
+	Decimal       string   // decimal mark: "point" (default) or "comma"
+	Sheet         string   // .xlsx worksheet ("" = the one visible sheet with cells)
+	HeaderRow     int      // .xlsx header row (0 = the first row)
+	Weights       string   // column, optional
+	WeightKind    string   // "frequency" (default) or "sampling"
+	Offset        string   // column, optional
+	Cluster       string   // column, optional
 	// Written: the data are a file ordplan wrote (SetFile: simulated
 	// data), comma-separated with a decimal point, read so whatever
 	// Delimiter, Decimal, Sheet and HeaderRow say; those still say how the
@@ -291,8 +295,32 @@ func (m Models) Backward() bool { return m.Direction == "backward" }
 // sheet the plan's own data have.
 func (d *Data) SetFile(file, path string) {
 	d.File, d.Path = file, path
-	d.Parts, d.PartFiles, d.PartPaths = nil, nil, nil
+	d.Parts, d.PartFiles, d.PartPaths, d.PartOf = nil, nil, nil, nil
 	d.Written = true
+}
+
+// PartEntry is an entry of data.parts: its index in the list and its
+// place in the plan file.
+type PartEntry struct{ Index, Line, Col int }
+
+// PartKey is the plan key of the entry of data.parts that part k (of
+// PartFiles) comes from, data.parts[i]: every message about one part
+// names it (data.parts itself when the entry is not known).
+func (d *Data) PartKey(k int) string {
+	if k < 0 || k >= len(d.PartOf) {
+		return "data.parts"
+	}
+	return itemPath("data.parts", d.PartOf[k].Index)
+}
+
+// PartWhere is an error about part k (of PartFiles) found after the plan
+// was read, at its entry of data.parts: PLAN:LINE:COL: data.parts[i]: err.
+func (d *Data) PartWhere(planFile string, k int, err error) error {
+	e := &Error{File: planFile, Key: d.PartKey(k), Msg: err.Error()}
+	if k >= 0 && k < len(d.PartOf) {
+		e.Line, e.Col = d.PartOf[k].Line, d.PartOf[k].Col
+	}
+	return e
 }
 
 // Paths are the files the data are read from: the parts, or the file.

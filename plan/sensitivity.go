@@ -529,7 +529,7 @@ func (s Sensitivity) Title() string {
 func (s Sensitivity) OnData(p *Plan) *Plan {
 	sp := *s.Plan
 	sp.Data.File, sp.Data.Path = p.Data.File, p.Data.Path
-	sp.Data.Parts, sp.Data.PartFiles, sp.Data.PartPaths = p.Data.Parts, p.Data.PartFiles, p.Data.PartPaths
+	sp.Data.Parts, sp.Data.PartFiles, sp.Data.PartPaths, sp.Data.PartOf = p.Data.Parts, p.Data.PartFiles, p.Data.PartPaths, p.Data.PartOf
 	sp.Data.Written = p.Data.Written
 	// A subset the analysis changes is named at its change, so that
 	// what the data say of it (no row kept, a value no row holds) names

@@ -914,7 +914,7 @@ func pinImputed(a *Analysis) ([]DataRef, func(), error) {
 	if files == nil {
 		files, paths, key = []string{im.File}, []string{im.Path}, "data.imputed.file"
 	}
-	refs, release, err := pinFiles(files, paths)
+	refs, release, _, err := pinFiles(files, paths)
 	if err != nil {
 		return nil, func() {}, fmt.Errorf("%s: %s: %v", a.Source, key, err)
 	}

@@ -33,6 +33,9 @@ type Analysis struct {
 	// DataPaths are the files of data held as parts (nil: DataPath), and
 	// DataFiles the parts as the plan names them.
 	DataPaths, DataFiles []string
+	// PlanData are a plan's data held as parts (nil otherwise), whose
+	// PartWhere names a part's entry of data.parts in messages.
+	PlanData *plan.Data
 	// Imputed names imputed versions of the data made elsewhere (nil:
 	// none); Imputation says how the program imputes the data itself
 	// (data.missing: impute; nil otherwise).
@@ -260,7 +263,7 @@ func ResolvePlan(p *plan.Plan) *Analysis {
 		Models: p.Models, Tests: p.Tests, Rules: p.Rules, Inference: p.Inference, NewRowsDialect: p.Data.NewRowsDialect(), Level: p.Report.ConfidenceLevel,
 		PanelsBy: p.Report.PanelsBy, Stability: p.SelectionStability}
 	if p.Data.Parts != nil {
-		a.DataPaths, a.DataFiles = p.Data.PartPaths, p.Data.PartFiles
+		a.DataPaths, a.DataFiles, a.PlanData = p.Data.PartPaths, p.Data.PartFiles, &p.Data
 	}
 	a.Imputed = p.Data.Imputed
 	a.Declared = declaredBounds(p.Dictionary)

@@ -411,8 +411,11 @@ func pinData(a *Analysis) (func() string, []DataRef, func(), error) {
 		}
 		return h, nil, unpin, nil
 	}
-	refs, unpin, err := pinFiles(a.DataFiles, a.DataPaths)
+	refs, unpin, k, err := pinFiles(a.DataFiles, a.DataPaths)
 	if err != nil {
+		if a.PlanData != nil {
+			return nil, nil, nil, a.PlanData.PartWhere(a.Source, k, err)
+		}
 		return nil, nil, nil, fmt.Errorf("%s: data.parts: %v", a.Source, err)
 	}
 	hashes := make([]string, len(refs))
@@ -424,9 +427,9 @@ func pinData(a *Analysis) (func() string, []DataRef, func(), error) {
 }
 
 // pinFiles pins files (named files, read at paths) for the run and
-// returns their references, or the first error naming its file (nothing
-// is left pinned then).
-func pinFiles(files, paths []string) ([]DataRef, func(), error) {
+// returns their references, or the first error naming its file, and the
+// file's index (nothing is left pinned then).
+func pinFiles(files, paths []string) ([]DataRef, func(), int, error) {
 	var refs []DataRef
 	var unpins []func()
 	release := func() {
@@ -443,14 +446,14 @@ func pinFiles(files, paths []string) ([]DataRef, func(), error) {
 				// Named as the plan names the file, once.
 				e := *de
 				e.File = files[i]
-				return nil, nil, &e
+				return nil, nil, i, &e
 			}
-			return nil, nil, fmt.Errorf("%s: %v", files[i], err)
+			return nil, nil, i, fmt.Errorf("%s: %v", files[i], err)
 		}
 		unpins = append(unpins, unpin)
 		refs = append(refs, DataRef{File: files[i], SHA256: h})
 	}
-	return refs, release, nil
+	return refs, release, -1, nil
 }
 
 // PartsHash is the hash of data held as parts: the hex SHA-256 of the

@@ -269,7 +269,7 @@ func mistakeItems(dir string) []badInput {
 			}},
 		{id: "X28", name: "data.parts: a part saved with semicolons among parts saved with commas", args: []string{"check"}, code: 1, setup: mixedParts,
 			plan: edit("file: d.csv", "parts: [X28-p1.csv, X28-p2.csv]"),
-			want: []string{`X28.yaml:3:10: data.parts: the part X28-p2.csv looks semicolon-separated with a decimal comma, but every part is read as the first part X28-p1.csv is, comma-separated with a decimal point (data.delimiter and data.decimal; ordplan fit: --delimiter and --decimal): save every part in one dialect`}},
+			want: []string{`X28.yaml:3:23: data.parts[1]: the part X28-p2.csv looks semicolon-separated with a decimal comma, but every part is read as the first part X28-p1.csv is, comma-separated with a decimal point (data.delimiter and data.decimal; ordplan fit: --delimiter and --decimal): save every part in one dialect`}},
 		{id: "X28", name: "ordplan fit --parts: a part saved with semicolons", args: []string{"fit", "--outcome", "y", "--predictors", "a", "--parts", "X28-p1.csv,X28-p2.csv"}, code: 1,
 			setup: func(t *testing.T, dir, id string) { mixedParts(t, dir, id); t.Chdir(dir) },
 			want:  []string{`ordplan: X28-p2.csv:1: looks semicolon-separated with a decimal comma, but every part is read as the first part X28-p1.csv is, comma-separated with a decimal point`}},

@@ -1387,12 +1387,12 @@ func catalogue(dir string) (items []badInput) {
 		{id: "D2", name: "header only, in a plan run: at data.file", args: []string{"run"},
 			plan: edit("file: d.csv", "file: header.csv"), code: 1,
 			want: []string{`D2.yaml:3:9: data.file: the data file "header.csv" (looked for header.csv) has a header line and no data rows after it`}},
-		{id: "D2", name: "header only, a part of data.parts: at data.parts", args: []string{"check"},
+		{id: "D2", name: "header only, a part of data.parts: at its entry data.parts[1]", args: []string{"check"},
 			plan: edit("file: d.csv", "parts: [d.csv, header.csv]"), code: 1,
-			want: []string{`D2.yaml:3:10: data.parts: the part "header.csv" (looked for header.csv) has a header line and no data rows after it; every part needs rows: leave it out of data.parts`}},
-		{id: "D2", name: "header only, a part of data.parts in a plan run: at data.parts", args: []string{"run"},
+			want: []string{`D2.yaml:3:18: data.parts[1]: the part "header.csv" (looked for header.csv) has a header line and no data rows after it; every part needs rows: leave it out of data.parts`}},
+		{id: "D2", name: "header only, a part of data.parts in a plan run: at its entry data.parts[1]", args: []string{"run"},
 			plan: edit("file: d.csv", "parts: [d.csv, header.csv]"), code: 1,
-			want: []string{`D2.yaml:3:10: data.parts: the part "header.csv" (looked for header.csv) has a header line and no data rows after it; every part needs rows: leave it out of data.parts`}},
+			want: []string{`D2.yaml:3:18: data.parts[1]: the part "header.csv" (looked for header.csv) has a header line and no data rows after it; every part needs rows: leave it out of data.parts`}},
 		{id: "D3", name: "ragged row", args: fitArgs(d("ragged.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`ragged.csv:3: row has 2 fields but the header has 3`}},
 		{id: "D4", name: "non-numeric predictor value", args: fitArgs(d("text.csv"), "--predictors", "a,b"), code: 1,
@@ -1498,6 +1498,12 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`D16.yaml:3:9: data.file: the data file "u16nobom.csv" (looked for u16nobom.csv) is UTF-16 text (every other byte is NUL): save it as UTF-8`}},
 		{id: "D18", name: "text that is not UTF-8", args: fitArgs(d("latin1.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`latin1.csv: is not UTF-8 text (byte 0xe9 on line 1 is not valid UTF-8; perhaps Latin-1 or Windows-1252): save the file as UTF-8`}},
+		{id: "D18", name: "a part of data.parts that is not UTF-8, in a plan run: at its entry data.parts[1]", args: []string{"run"},
+			setup: func(t *testing.T, dir, id string) {
+				withColumns(t, dir, "latin1part.csv", "note", func(i int, _ []string) string { return "caf\xe9" })
+			},
+			plan: edit("file: d.csv", "parts: [d.csv, latin1part.csv]"), code: 1,
+			want: []string{`D18.yaml:3:18: data.parts[1]: latin1part.csv: is not UTF-8 text (byte 0xe9 on line 2 is not valid UTF-8; perhaps Latin-1 or Windows-1252): save the file as UTF-8`}},
 		{id: "D19", name: "file in another CSV dialect than the plan says", args: []string{"check"}, plan: edit("file: d.csv", "file: semi.csv"), code: 1,
 			want: []string{`D19.yaml:3:3: data.delimiter: data file semi.csv: the file looks semicolon-separated with a decimal comma, but is read as comma-separated with a decimal point: set delimiter: semicolon and decimal: comma under data (ordplan fit: --delimiter semicolon --decimal comma)`}},
 		{id: "D20", name: "decimal comma read with a decimal point", args: fitArgs(d("semi.csv"), "--predictors", "a,b", "--delimiter", "semicolon"), code: 1,
@@ -1874,9 +1880,9 @@ func catalogue(dir string) (items []badInput) {
 		{id: "X8", name: "data.parts: an empty list", args: []string{"check"}, plan: edit("file: d.csv", "parts: []"), code: 1,
 			want: []string{`X8.yaml:3:10: data.parts: list is empty; give at least one part (a file name or pattern)`}},
 		{id: "X9", name: "data.parts: a part that does not exist", args: []string{"check"}, plan: edit("file: d.csv", "parts: [d.csv, gone.csv]"), code: 1,
-			want: []string{`X9.yaml:3:10: data.parts: cannot open the part "gone.csv" (looked for `, `gone.csv): no such file or directory`}},
+			want: []string{`X9.yaml:3:18: data.parts[1]: cannot open the part "gone.csv" (looked for `, `gone.csv): no such file or directory`}},
 		{id: "X10", name: "data.parts: a pattern that matches no file", args: []string{"check"}, plan: edit("file: d.csv", "parts: [d.csv, nothere/*.csv]"), code: 1,
-			want: []string{`X10.yaml:3:10: data.parts: the pattern "nothere/*.csv" matches no file (looked for `}},
+			want: []string{`X10.yaml:3:18: data.parts[1]: the pattern "nothere/*.csv" matches no file (looked for `}},
 		// Typed as a user types it, in the data's folder: the message quotes
 		// the pattern as typed and says where it looked.
 		{id: "X10", name: "ordplan fit --parts: a pattern that matches no file", args: []string{"fit", "--outcome", "y", "--predictors", "a", "--parts", "d.csv,nothere/*.csv"}, code: 1,
@@ -1888,9 +1894,9 @@ func catalogue(dir string) (items []badInput) {
 				}
 			}},
 		{id: "X11", name: "data.parts: a part with other columns", args: []string{"check"}, plan: edit("file: d.csv", "parts: [parts/p1.csv, otherpart.csv]"), code: 1,
-			want: []string{`X11.yaml:3:10: data.parts: the part otherpart.csv has other columns than the first part parts/p1.csv (it lacks "b"`, `; it has "z" besides); every part must have the same columns`}},
+			want: []string{`X11.yaml:3:25: data.parts[1]: the part otherpart.csv has other columns than the first part parts/p1.csv (it lacks "b"`, `; it has "z" besides); every part must have the same columns`}},
 		{id: "X12", name: "data.parts: a part given twice (by a pattern and by name)", args: []string{"check"}, plan: edit("file: d.csv", "parts: [parts/*.csv, parts/p2.csv]"), code: 1,
-			want: []string{`X12.yaml:3:10: data.parts: the part "parts/p2.csv" comes twice from the list (a pattern and a name, or two patterns, both give it); every part is read once`}},
+			want: []string{`X12.yaml:3:24: data.parts[1]: the part "parts/p2.csv" comes twice from the list (a pattern and a name, or two patterns, both give it); every part is read once`}},
 		{id: "X12", name: "ordplan fit --parts: the same file twice", args: []string{"fit", "--outcome", "y", "--predictors", "a", "--parts", "parts/p1.csv,parts/p1.csv"}, code: 1,
 			setup: inDataFolder,
 			want:  []string{`ordplan: --parts: "parts/p1.csv" is listed twice (items 1 and 2 of "parts/p1.csv,parts/p1.csv"); every part is read once`}},
@@ -1899,7 +1905,7 @@ func catalogue(dir string) (items []badInput) {
 			want:  []string{`ordplan: --parts: the part "parts/p2.csv" comes twice from the list (a pattern and a name, or two patterns, both give it); every part is read once`}},
 		{id: "X26", name: "data.parts: a pattern that gives a file and a symbolic link to it", args: []string{"run"}, plan: edit("file: d.csv", "parts: [links/exports/*.csv]"), code: 1,
 			setup: twinFiles,
-			want:  []string{`X26.yaml:3:10: data.parts: the parts "links/exports/2024-02.csv" and "links/exports/latest.csv" are one file ("links/exports/latest.csv" is a symbolic link to "links/exports/2024-02.csv"), so the same rows would be read twice; every part is read once: leave one of them out (name the parts one by one, or give a pattern that matches only one of them)`},
+			want:  []string{`X26.yaml:3:11: data.parts[0]: the parts "links/exports/2024-02.csv" and "links/exports/latest.csv" are one file ("links/exports/latest.csv" is a symbolic link to "links/exports/2024-02.csv"), so the same rows would be read twice; every part is read once: leave one of them out (name the parts one by one, or give a pattern that matches only one of them)`},
 			check: func(t *testing.T, dir, out, errs string) {
 				if _, err := os.Stat(filepath.Join(dir, "X26-out")); err == nil {
 					t.Errorf("the refused run made its output folder")
@@ -1913,7 +1919,7 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`X26.yaml:4:20: data.imputed.files: imputed sets 1 and 3 ("links/imp1.csv" and "links/imp3.csv") are one file ("links/imp3.csv" is a symbolic link to "links/imp1.csv"): one set counted twice understates the variance between the imputed sets, so intervals come out too narrow and tests reject too often; list each imputed set once`}},
 		{id: "X27", name: "data.parts: a part and a copy of it under another name", args: []string{"check"}, plan: edit("file: d.csv", "parts: [parts/p1.csv, parts/p2.csv, links/copy.csv]"), code: 1,
 			setup: twinFiles,
-			want:  []string{`X27.yaml:3:10: data.parts: the parts "parts/p1.csv" and "links/copy.csv" hold the same bytes (sha256 `, `), so the same rows would be read twice; every part is read once: leave one of them out (name the parts one by one, or give a pattern that matches only one of them)`}},
+			want:  []string{`X27.yaml:3:39: data.parts[2]: the parts "parts/p1.csv" and "links/copy.csv" hold the same bytes (sha256 `, `), so the same rows would be read twice; every part is read once: leave one of them out (name the parts one by one, or give a pattern that matches only one of them)`}},
 		{id: "X27", name: "ordplan fit --parts: a part and a copy of it", args: []string{"fit", "--outcome", "y", "--predictors", "a", "--parts", "links/copy.csv,parts/*.csv"}, code: 1,
 			setup: func(t *testing.T, dir, id string) { twinFiles(t, dir, id); t.Chdir(dir) },
 			want:  []string{`ordplan: --parts: the parts "links/copy.csv" and "parts/p1.csv" hold the same bytes (sha256 `}},
@@ -1929,8 +1935,8 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("report.md lacks the note")
 				}
 			}},
-		{id: "X13", name: "data.parts: a part with a header and no rows (at data.parts, as D2)", args: []string{"run"}, plan: edit("file: d.csv", "parts: [parts/p1.csv, emptypart.csv]"), code: 1,
-			want: []string{`X13.yaml:3:10: data.parts: the part "emptypart.csv" (looked for emptypart.csv) has a header line and no data rows after it; every part needs rows: leave it out of data.parts`}},
+		{id: "X13", name: "data.parts: a part with a header and no rows (at its entry data.parts[1], as D2)", args: []string{"run"}, plan: edit("file: d.csv", "parts: [parts/p1.csv, emptypart.csv]"), code: 1,
+			want: []string{`X13.yaml:3:25: data.parts[1]: the part "emptypart.csv" (looked for emptypart.csv) has a header line and no data rows after it; every part needs rows: leave it out of data.parts`}},
 		{id: "X13", name: "ordplan fit --parts --queue: a part with a header and no rows (found before connecting)", args: []string{"fit", "--outcome", "y", "--predictors", "a", "--parts", "parts/p1.csv,emptypart.csv", "--queue", "nats://127.0.0.1:1", "--queue-secret-file", "queue.key"}, code: 1,
 			setup: inDataFolder,
 			want:  []string{`ordplan: emptypart.csv: no data rows after the header; every part needs rows (leave an empty part out of data.parts or --parts)`}},

@@ -564,7 +564,7 @@ func (f *fitFlags) partFiles() ([]string, error) {
 			return nil, fmt.Errorf("--parts: %q is listed twice (items %d and %d of %q); every part is read once", p, j+1, i+1, *f.parts)
 		}
 	}
-	files, paths := plan.ExpandParts(".", parts)
+	files, paths, _ := plan.ExpandParts(".", parts)
 	for i, file := range files {
 		if _, err := os.Stat(paths[i]); err != nil && strings.ContainsAny(file, "*?[") {
 			where, _ := filepath.Abs(paths[i])
@@ -572,7 +572,7 @@ func (f *fitFlags) partFiles() ([]string, error) {
 		}
 	}
 	if twice := slices.Concat(plan.PartsTwice(files, paths), plan.PartsTwins(files, paths)); len(twice) > 0 {
-		return nil, fmt.Errorf("--parts: %s", twice[0])
+		return nil, fmt.Errorf("--parts: %s", twice[0].Msg)
 	}
 	return paths, nil
 }

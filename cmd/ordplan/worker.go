@@ -130,8 +130,8 @@ func runPlan(p *plan.Plan, opt runner.Options, cfg *queue.Config, deadline time.
 func runOnQueue(ctx context.Context, c *queue.Client, p *plan.Plan, opt runner.Options, log io.Writer) (*runner.Result, error) {
 	co := queue.NewCoordinator(ctx, c, p.Hash, log)
 	if p.Data.Parts != nil {
-		if _, err := co.AddParts(p.Data.PartPaths); err != nil {
-			return nil, fmt.Errorf("%s: data.parts: %v", p.Path, err)
+		if _, k, err := co.AddParts(p.Data.PartPaths); err != nil {
+			return nil, p.Data.PartWhere(p.Path, k, err)
 		}
 	} else if _, err := co.AddData(p.Data.Path); err != nil {
 		return nil, fmt.Errorf("%s: data.file: %v", p.Path, err)

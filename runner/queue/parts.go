@@ -16,19 +16,20 @@ import (
 // summed over the workers (FitPartitioned), where the partitioned path can
 // fit them; the others are fitted here, on the parts read as one data
 // set, and the log says why. It returns the data's hash as the run
-// records it (runner.PartsHash).
-func (co *Coordinator) AddParts(paths []string) (string, error) {
+// records it (runner.PartsHash), or the index of the part it could not
+// read and why.
+func (co *Coordinator) AddParts(paths []string) (string, int, error) {
 	var hashes []string
-	for _, p := range paths {
+	for i, p := range paths {
 		h, err := HashFile(p)
 		if err != nil {
-			return "", fmt.Errorf("data part: %v", err)
+			return "", i, fmt.Errorf("data part: %v", err)
 		}
 		hashes = append(hashes, h)
 	}
 	h := runner.PartsHash(hashes)
 	co.parts[h] = paths
-	return h, nil
+	return h, -1, nil
 }
 
 // notPartitioned says why the partitioned path cannot fit a job ("" when
