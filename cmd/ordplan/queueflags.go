@@ -120,7 +120,9 @@ type workerSignals struct {
 }
 
 // watchWorkerSignals starts catching the stop signals for the worker
-// name, telling log (nil: nobody) at the first what a second would do.
+// name, telling log at the first what a second would do. log is stderr
+// with --quiet too: whoever pressed Ctrl-C must learn that the worker
+// goes on with its jobs and that a second press stops it at once.
 func watchWorkerSignals(name string, log io.Writer) *workerSignals {
 	stop, endStop := context.WithCancel(context.Background())
 	abort, endAbort := context.WithCancel(context.Background())
@@ -131,9 +133,7 @@ func watchWorkerSignals(name string, log io.Writer) *workerSignals {
 		if !ok {
 			return
 		}
-		if log != nil {
-			fmt.Fprintf(log, "worker %s: asked to stop (%s): it takes no new job and finishes the jobs it started; stop it again (Ctrl-C, SIGTERM) to give them back unfinished and stop at once\n", name, signalName(s))
-		}
+		fmt.Fprintf(log, "worker %s: asked to stop (%s): it takes no new job and finishes the jobs it started; stop it again (Ctrl-C, SIGTERM) to give them back unfinished and stop at once\n", name, signalName(s))
 		endStop()
 		s, ok = <-ws.ch
 		if !ok {

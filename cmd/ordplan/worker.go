@@ -32,7 +32,7 @@ func runWorker(args []string, stdout, stderr io.Writer, hold time.Duration, hold
 	jobs := fs.Int("jobs", runtime.GOMAXPROCS(0), "jobs computed at once")
 	ackWait := fs.Duration("ack-wait", queue.DefaultAckWait, "a job not acknowledged for this long goes to another worker")
 	name := fs.String("name", "", "name in replies and logs (default: host-pid)")
-	quiet := fs.Bool("quiet", false, "no line per job")
+	quiet := fs.Bool("quiet", false, "no line per job (the line at a stop signal, saying what a second does, still prints)")
 	maxStarts := fs.Int("max-starts", queue.DefaultLimits.Starts, "refuse jobs asking for more random starts")
 	maxIter := fs.Int("max-iterations", queue.DefaultLimits.Iterations, "refuse jobs asking for more Newton iterations")
 	maxPred := fs.Int("max-predictors", queue.DefaultLimits.Predictors, "refuse jobs with more predictors")
@@ -82,7 +82,7 @@ func runWorker(args []string, stdout, stderr io.Writer, hold time.Duration, hold
 	if !*quiet {
 		log = stderr
 	}
-	sig := watchWorkerSignals(*name, log)
+	sig := watchWorkerSignals(*name, stderr) // --quiet or not
 	defer sig.end()
 	c, err := dialQueue(sig.stop, cfg, 0, stderr)
 	if err != nil {

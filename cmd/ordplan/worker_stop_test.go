@@ -1,12 +1,17 @@
 package main
 
 import (
+	"context"
 	"os"
 	"strings"
 	"syscall"
 	"testing"
 	"time"
 
+	"github.com/nats-io/nats.go"
+	"github.com/nats-io/nats.go/jetstream"
+
+	"ordplan/runner/queue"
 	"ordplan/runner/queue/localserver"
 )
 
@@ -87,5 +92,50 @@ func TestWorkerSecondSignalGivesJobsBack(t *testing.T) {
 	if log := w.stderr.String(); strings.Count(log, "(delivery 1, after 1 give-back by a stopped worker, not counted)") != 2 &&
 		!strings.Contains(log, "(delivery 1, after 2 give-backs by stopped workers, not counted)") || strings.Contains(log, "(delivery 2") {
 		t.Errorf("the jobs given back were not delivered again as their first counted delivery:\n%s", log)
+	}
+}
+
+// TestQuietWorkerSaysWhatASecondSignalDoes: --quiet drops a worker's line
+// per job, not the line at its first stop signal, which tells whoever
+// pressed Ctrl-C that the worker finishes its jobs first and that a
+// second press stops it at once (as warnings and errors, it is printed
+// under --quiet). The worker then stops and exits 0, with that line alone
+// on stderr.
+func TestQuietWorkerSaysWhatASecondSignalDoes(t *testing.T) {
+	url := localserver.ForTest(t)
+	p := startProc(t, nil, "worker", "--queue", url, "--name", "w-quiet", "--jobs", "1", "--cache", t.TempDir(), "--quiet")
+	// Nothing is logged under --quiet: the worker is ready once its
+	// consumer exists on the server.
+	nc, err := nats.Connect(url)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer nc.Close()
+	js, _ := jetstream.New(nc)
+	deadline := time.Now().Add(20 * time.Second)
+	for {
+		ctx, cancel := context.WithTimeout(context.Background(), time.Second)
+		_, err := js.Consumer(ctx, queue.JobStream, queue.WorkerGroup)
+		cancel()
+		if err == nil {
+			break
+		}
+		if time.Now().After(deadline) {
+			t.Fatalf("the quiet worker made no consumer within 20 s (%v): %s", err, p.stderr.String())
+		}
+		time.Sleep(50 * time.Millisecond)
+	}
+	p.cmd.Process.Signal(syscall.SIGINT)
+	select {
+	case <-p.done:
+	case <-time.After(20 * time.Second):
+		t.Fatalf("the quiet worker did not stop: %s", p.stderr.String())
+	}
+	if code := p.cmd.ProcessState.ExitCode(); code != exitOK {
+		t.Errorf("exit %d, want %d: %s", code, exitOK, p.stderr.String())
+	}
+	want := "worker w-quiet: asked to stop (SIGINT): it takes no new job and finishes the jobs it started; stop it again (Ctrl-C, SIGTERM) to give them back unfinished and stop at once\n"
+	if got := p.stderr.String(); got != want {
+		t.Errorf("stderr of a quiet worker stopped once:\n%q\nwant\n%q", got, want)
 	}
 }
