@@ -3054,6 +3054,7 @@ var testedElsewhere = map[string]struct{ file, name string }{
 	"Q13": {"../../runner/queue/faults_test.go", "TestWorkerFaultStopsRunOrIsRetried"},
 	"Q14": {"../../runner/queue/reconnect_test.go", "TestConnectionLostAndFoundIsLogged"},
 	"Q17": {"../../runner/queue/secure_test.go", "TestLoginAndTokenFiles"},
+	"Q19": {"../../runner/queue/giveback_seal_test.go", "TestGiveBackHeadersSealed"},
 }
 
 // Every item of the catalogue is in docs/bad-inputs.md, and every item

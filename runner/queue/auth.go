@@ -17,7 +17,10 @@ const (
 	sealTask  = 'T' // a gob Task, named by its subject
 	sealReply = 'R' // a gob Reply, named by its key
 	sealRef   = 'O' // a gob objectRef: the reply is in the replies store
-	sealHead  = len(sealMagic) + 1 + sha256.Size
+	// The give-back headers of a job message (giveBackSeal): not a
+	// sealed message of its own, a header's HMAC.
+	sealGiveBack = 'G'
+	sealHead     = len(sealMagic) + 1 + sha256.Size
 )
 
 func mac(key []byte, kind byte, name string, payload []byte) []byte {

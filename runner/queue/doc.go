@@ -29,8 +29,13 @@
 //     stopped on purpose (a second stop signal) gives its unfinished jobs
 //     back by publishing each anew with the count of its earlier
 //     deliveries that counted (headers Ordplan-Deliveries-Counted,
-//     Ordplan-Given-Back) and acknowledging the old message, so a
-//     give-back does not count against these limits;
+//     Ordplan-Given-Back, sealed with the job by Ordplan-Give-Back-Seal)
+//     and acknowledging the old message, so a give-back does not count
+//     against these limits; the new message goes to the end of the queue,
+//     behind the jobs already queued (a NAK would have the server deliver
+//     it again first, but as one more delivery of the same message, which
+//     counts against MaxDeliver and which a worker cannot tell from a
+//     delivery to a worker killed while holding it);
 //   - the key-value bucket ordplan-results, where a worker stores the reply
 //     to job <index> of batch <batch> under the key <batch>.<index> with a
 //     create-only write, so a second worker's reply is dropped; the bucket
@@ -56,8 +61,12 @@
 //
 // Messages are gob-encoded: a Task on the jobs stream and a Reply in the
 // bucket, each sealed with an HMAC-SHA256 made with the secret shared by
-// the coordinator and the workers (auth.go). Workers drop jobs that do not
-// open and refuse jobs beyond their Limits; the coordinator discards, logs
+// the coordinator and the workers (auth.go); the give-back headers of a
+// job carry their own HMAC of the counts, the subject and the job
+// (giveBackSeal), so a process without the secret cannot change how many
+// deliveries of a job count. Workers drop jobs that do not open or whose
+// give-back headers do not match their seal, and refuse jobs beyond their
+// Limits; the coordinator discards, logs
 // and publishes again the job of a reply that does not open or does not
 // have the shape of an answer (validate.go), and never waits longer than
 // twice the job deadline without a reply. Connect takes TLS files and NATS

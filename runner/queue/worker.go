@@ -2,6 +2,8 @@ package queue
 
 import (
 	"context"
+	"crypto/hmac"
+	"encoding/hex"
 	"errors"
 	"fmt"
 	"io"
@@ -145,21 +147,26 @@ func (w *Worker) loop(ctx context.Context, cons jetstream.Consumer) {
 const faultRetryDelay = time.Second
 
 // handle computes one job, stores its reply and acknowledges it. A job
-// without a valid seal is dropped; a job delivered more than PoisonAfter
+// without a valid seal, or whose give-back headers do not match theirs
+// (deliveries), is dropped; a job delivered more than PoisonAfter
 // times (every worker that took it stopped) is answered with an error
 // instead of being computed again.
 func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
-	delivered, gaveBack := deliveries(msg)
+	t, err := w.Client.openTask(msg.Subject(), msg.Data())
+	var delivered uint64
+	var gaveBack int
+	if err == nil {
+		delivered, gaveBack, err = w.Client.deliveries(msg, t)
+	}
+	if err != nil {
+		w.logf("worker %s: %s: job refused: %v", w.Name, msg.Subject(), err)
+		msg.TermWithReason("job refused: " + err.Error())
+		return
+	}
 	if ctx.Err() != nil {
 		// Taken by a fetch that was waiting when the worker was asked to
 		// stop: not started, so given back at once, not counted.
 		w.giveBack(msg, delivered, gaveBack)
-		return
-	}
-	t, err := w.Client.openTask(msg.Subject(), msg.Data())
-	if err != nil {
-		w.logf("worker %s: %s: job refused: %v", w.Name, msg.Subject(), err)
-		msg.TermWithReason("job refused: " + err.Error())
 		return
 	}
 	back := ""
@@ -244,32 +251,69 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 
 // The headers of a job message published again by a worker that gave it
 // back (giveBack): the deliveries of the job that count before this
-// message, and the give-backs, which do not count. A job first published
-// by the coordinator has neither.
+// message, the give-backs, which do not count, and the seal of both with
+// the job (giveBackSeal), so that only a process with the shared secret
+// sets the count. A job first published by the coordinator has none.
 const (
 	headerCounted  = "Ordplan-Deliveries-Counted"
 	headerGaveBack = "Ordplan-Given-Back"
+	headerSeal     = "Ordplan-Give-Back-Seal"
 )
+
+// giveBackSeal is the hex HMAC, with the shared secret, of a job
+// message's give-back headers as written, its subject and its data: a
+// count changed, moved to another job or written without the secret does
+// not match. It does not stop a client that can publish on the jobs
+// subjects from publishing again a message it saw, with the headers (and
+// so the count) that message had.
+func (c *Client) giveBackSeal(subject, counted, gaveBack string, data []byte) string {
+	payload := make([]byte, 0, len(counted)+len(gaveBack)+2+len(data))
+	payload = append(payload, counted...)
+	payload = append(payload, 0)
+	payload = append(payload, gaveBack...)
+	payload = append(payload, 0)
+	return hex.EncodeToString(mac(c.secret, sealGiveBack, subject, append(payload, data...)))
+}
 
 // deliveries is the count of a job's deliveries that count against
 // PoisonAfter, this one included: the server's delivery count of this
 // message (each earlier delivery of it ended unfinished: a worker killed,
 // a fault, a reply not stored) plus those the message carries from the
 // messages of the job given back before it; and how many times the job
-// was given back by a stopped worker, which does not count.
-func deliveries(msg jetstream.Msg) (delivered uint64, gaveBack int) {
+// was given back by a stopped worker, which does not count. Give-back
+// headers that are not all there, not counts, or not sealed with the job
+// are an error naming the job t and the header: the job is refused.
+func (c *Client) deliveries(msg jetstream.Msg, t *Task) (delivered uint64, gaveBack int, err error) {
 	delivered = 1
 	if md, err := msg.Metadata(); err == nil {
 		delivered = md.NumDelivered
 	}
 	h := msg.Headers()
-	if n, err := strconv.ParseUint(h.Get(headerCounted), 10, 32); err == nil {
-		delivered += n
+	counted, back, sum := h.Get(headerCounted), h.Get(headerGaveBack), h.Get(headerSeal)
+	if counted == "" && back == "" && sum == "" {
+		return delivered, 0, nil // published by the coordinator: never given back
 	}
-	if n, err := strconv.Atoi(h.Get(headerGaveBack)); err == nil && n > 0 {
-		gaveBack = n
+	refuse := func(format string, a ...any) error {
+		return fmt.Errorf("job %s: %s; these headers say how many of the job's deliveries count against its limit of %d and only a worker with the shared secret writes them: check which clients may publish on %s.> on the queue server, and that every worker runs this version of ordplan (an older one gives jobs back without %s); a job left without a reply is published again after the coordinator's --job-deadline",
+			t.jobName(), fmt.Sprintf(format, a...), PoisonAfter, JobSubject, headerSeal)
 	}
-	return delivered, gaveBack
+	for _, hd := range []struct{ name, value string }{{headerCounted, counted}, {headerGaveBack, back}, {headerSeal, sum}} {
+		if hd.value == "" {
+			return 0, 0, refuse("it carries give-back headers without %s", hd.name)
+		}
+	}
+	if !hmac.Equal([]byte(sum), []byte(c.giveBackSeal(msg.Subject(), counted, back, msg.Data()))) {
+		return 0, 0, refuse("its headers %s: %q and %s: %q do not match their seal %s (written without the shared secret, or changed since)", headerCounted, counted, headerGaveBack, back, headerSeal)
+	}
+	n, err := strconv.ParseUint(counted, 10, 32)
+	if err != nil {
+		return 0, 0, refuse("its header %s: %q is not a count", headerCounted, counted)
+	}
+	gaveBack, err = strconv.Atoi(back)
+	if err != nil || gaveBack < 1 {
+		return 0, 0, refuse("its header %s: %q is not a count of at least 1", headerGaveBack, back)
+	}
+	return delivered + n, gaveBack, nil
 }
 
 // giveBack hands a job the worker was asked to stop on purpose back to
@@ -283,9 +327,11 @@ func deliveries(msg jetstream.Msg) (delivered uint64, gaveBack int) {
 func (w *Worker) giveBack(msg jetstream.Msg, delivered uint64, gaveBack int) string {
 	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
 	defer cancel()
+	counted, back := strconv.FormatUint(delivered-1, 10), strconv.Itoa(gaveBack+1)
 	again := &nats.Msg{Subject: msg.Subject(), Data: msg.Data(), Header: nats.Header{}}
-	again.Header.Set(headerCounted, strconv.FormatUint(delivered-1, 10))
-	again.Header.Set(headerGaveBack, strconv.Itoa(gaveBack+1))
+	again.Header.Set(headerCounted, counted)
+	again.Header.Set(headerGaveBack, back)
+	again.Header.Set(headerSeal, w.Client.giveBackSeal(msg.Subject(), counted, back, msg.Data()))
 	if _, err := w.Client.js.PublishMsg(ctx, again); err != nil {
 		msg.Nak()
 		return fmt.Sprintf("not acknowledged: delivered again to another worker; publishing it anew failed (%v), so this delivery counts against its limit of %d", err, PoisonAfter)
