@@ -359,9 +359,13 @@ func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 		fig.series = append(fig.series, figSeries{name: lv, color: col, ys: exp, legend: true}, figSeries{name: lv + " observed", color: col, ys: obs, points: true, noLine: true})
 		l.AddSeries(shown[j], lineData(obs), points(col)...)
 	}
-	// The marks' entries: series without data, in grey.
+	// The marks' entries: series without data, in grey (in the static
+	// figure, legend entries alone).
 	l.AddSeries(expected, []opts.LineData{}, lineStyle(colorMark, 2, false, false)...)
 	l.AddSeries(observed, []opts.LineData{}, points(colorMark)...)
+	fig.series = append(fig.series,
+		figSeries{name: expected, color: colorMark, legend: true, legendOnly: true},
+		figSeries{name: observed, color: colorMark, points: true, noLine: true, legend: true, legendOnly: true})
 	caption := "For each category, the expected share of each group (line) and the observed share (points). Points far from their line, in a pattern, show where the model misfits; groups are ordered by predicted score."
 	return newChart(fr, caption, l).with(fig)
 }

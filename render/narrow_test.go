@@ -2,6 +2,7 @@ package render
 
 import (
 	"encoding/json"
+	"regexp"
 	"strconv"
 	"strings"
 	"testing"
@@ -238,6 +239,23 @@ func TestCalibrationLegendGroupsCategories(t *testing.T) {
 	}
 	if !found {
 		t.Fatal("no calibration chart in the golden report")
+	}
+	// The static figure has the same key: after the categories, the grey
+	// line (expected) and the grey point (observed), entries alone.
+	found = false
+	for name, b := range files {
+		s := string(b)
+		if !strings.HasSuffix(name, ".svg") || !strings.Contains(s, ">Observed and expected by group of predicted score<") {
+			continue
+		}
+		found = true
+		key := regexp.MustCompile(`<path d="M[-0-9.,L]+" style="fill:none;stroke:#6B6B6B;[^"]*" />\s*<text[^>]*>expected</text>\s*<path d="M[-0-9.,]+A[^"]*Z" style="fill:#6B6B6B" />\s*<text[^>]*>observed</text>`)
+		if !key.MatchString(s) || strings.Index(s, ">very_safe<") > strings.Index(s, ">expected<") {
+			t.Errorf("%s: no grey key (a line, expected; a point, observed) after the categories in the static figure", name)
+		}
+	}
+	if !found {
+		t.Fatal("no static calibration figure in the golden report")
 	}
 	if e, o := calibrationMarks([]string{"low", "expected"}); e == "expected" || o == "observed" {
 		t.Errorf("a category named expected: marks %q, %q", e, o)
