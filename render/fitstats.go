@@ -325,8 +325,10 @@ func calibrationChart(d *doc, or *runner.OutcomeResult) *chart {
 	for _, c := range t.Categories {
 		tooltip = append(tooltip, c+" expected", c+" observed")
 	}
-	fr := d.frame(chartFrame{title: "Observed and expected by group of predicted score", subtitle: or.Chosen.ID, height: 420,
-		grid: opts.Grid{Left: "6%", Right: "8%", Top: "70", Bottom: "70"}, legend: legend,
+	// The bottom margin: the x axis's name and a one-row legend, some 19
+	// pixels apart (as predictionGrid's).
+	fr := d.frame(chartFrame{title: "Observed and expected by group of predicted score", subtitle: or.Chosen.ID, height: 406,
+		grid: opts.Grid{Left: "6%", Right: "8%", Top: "70", Bottom: "56"}, legend: legend,
 		lineOnly: map[string]bool{expected: true}, tooltipNames: append(tooltip, expected, observed)})
 	l := charts.NewLine()
 	l.SetGlobalOptions(append(fr.opts(),

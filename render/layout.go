@@ -194,7 +194,7 @@ const (
 	legendRightMax = 120         // pixels an entry of a legend beside the plot may take
 	legendIconRoom = 25 + 5 + 10 // the icon, its gap to the text, the gap to the next entry
 	yNameRoom      = 20          // pixels between the subtitle and the plot for the y axis's name
-	legendStrip    = 40          // pixels a one-row legend at the bottom takes below the x axis's name
+	legendStrip    = 26          // pixels a one-row legend at the bottom takes below the x axis's name (predictionGrid)
 )
 
 // chartTitle wraps a chart's title and subtitle to a text width of

@@ -212,7 +212,12 @@ func heldWords(pf *profile, label, sep string) string {
 	return sep + strings.Join(parts, ", ")
 }
 
-var predictionGrid = opts.Grid{Left: "6%", Right: "8%", Top: "70", Bottom: "70"}
+// predictionGrid and predictionHeight are the frame of the prediction
+// charts. The bottom margin holds the x axis's name and a one-row legend
+// with some 16 pixels between them (at 70, as it was, 30).
+var predictionGrid = opts.Grid{Left: "6%", Right: "8%", Top: "70", Bottom: "56"}
+
+const predictionHeight = 406
 
 // predictionChart draws the predicted probabilities against the focus
 // predictor: stacked bars at 0 and 1 for a 0/1 predictor, else one line
@@ -255,7 +260,7 @@ func predictionChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 	}
 	fig := newFigure(title, pf.axis, "probability")
 	fig.yMin = 0
-	fr := d.frame(chartFrame{title: title, subtitle: sub, height: 420, grid: predictionGrid, legend: res.Categories})
+	fr := d.frame(chartFrame{title: title, subtitle: sub, height: predictionHeight, grid: predictionGrid, legend: res.Categories})
 	if pf.binary {
 		b := charts.NewBar()
 		b.SetGlobalOptions(append(fr.opts(),
@@ -352,7 +357,7 @@ func cumulativeChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 	grid.Left = "40" // room for the y axis's name, turned beside the axis (a long one over the axis would meet the subtitle)
 	right := 40 + int(math.Ceil(widest))
 	grid.Right = strconv.Itoa(right)
-	fr := d.frame(chartFrame{title: title, subtitle: sub, height: 420, grid: grid, legend: legend, legendRight: true, rightBelow: predictionGrid.Right, yNameBeside: true})
+	fr := d.frame(chartFrame{title: title, subtitle: sub, height: predictionHeight, grid: grid, legend: legend, legendRight: true, rightBelow: predictionGrid.Right, yNameBeside: true})
 	l.SetGlobalOptions(append(fr.opts(),
 		charts.WithXAxisOpts(focusAxis(pf.axis)),
 		charts.WithYAxisOpts(opts.YAxis{Name: "cumulative probability", Type: "value", Min: 0, Max: 1, NameLocation: "middle", NameGap: 32}),
