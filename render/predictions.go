@@ -361,8 +361,12 @@ func cumulativeChart(d *doc, or *runner.OutcomeResult, pf *profile, label string
 	l.SetGlobalOptions(append(fr.opts(),
 		charts.WithXAxisOpts(focusAxis(pf.axis)),
 		charts.WithYAxisOpts(opts.YAxis{Name: "cumulative probability", Type: "value", Min: 0, Max: 1, NameLocation: "middle", NameGap: 32}),
+		// Each entry's icon is a square of its layer's colour, beside the
+		// plot and below it alike, as the static figure draws it: the
+		// library's icon of a line series (a line through a circle)
+		// showed a line the chart does not draw.
 		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Orient: "vertical", Right: "0", Top: "middle",
-			Data: legend}))...)
+			Data: legend, Icon: "rect", ItemWidth: 14, ItemHeight: 14}))...)
 	fig := newFigure(title, pf.axis, "cumulative probability")
 	fig.yMin, fig.yMax = 0, 1
 	fig.legendUp = true

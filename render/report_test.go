@@ -252,7 +252,8 @@ func TestFallbackNamedWhereTheChosenModelIs(t *testing.T) {
 // TestStackedLegendFollowsLayers: the legend of the stacked chart of
 // cumulative probabilities in report.html lists the outcome's categories
 // as its layers lie, from the highest at the top to the lowest at the
-// bottom, one per line right of the plot, as the static figure does.
+// bottom, one per line right of the plot, as the static figure does,
+// each by a square of its layer's colour.
 func TestStackedLegendFollowsLayers(t *testing.T) {
 	files := renderPlan(t, goldenPlan, 2)
 	found := false
@@ -261,6 +262,7 @@ func TestStackedLegendFollowsLayers(t *testing.T) {
 			Title  struct{ Text string } `json:"title"`
 			Legend struct {
 				Orient string `json:"orient"`
+				Icon   string `json:"icon"`
 				Data   []any  `json:"data"` // names, or objects (an entry drawn as its line alone)
 			} `json:"legend"`
 		}
@@ -274,6 +276,12 @@ func TestStackedLegendFollowsLayers(t *testing.T) {
 		want := "very_safe safe neutral unsafe very_unsafe"
 		if opt.Legend.Orient != "vertical" || strings.Trim(fmt.Sprint(opt.Legend.Data), "[]") != want {
 			t.Errorf("%s: legend %+v, want vertical %s", c[1], opt.Legend, want)
+		}
+		// Its icons are squares of the layers' colours, beside the plot
+		// and below it (the narrow layouts change where the legend
+		// stands, not its icon), not a line the chart does not draw.
+		if opt.Legend.Icon != "rect" {
+			t.Errorf("%s: legend icon %q, want rect", c[1], opt.Legend.Icon)
 		}
 	}
 	if !found {
