@@ -49,6 +49,16 @@ function mark(){var ws=document.querySelectorAll(".table-wrap");for(var i=0;i<ws
 document.addEventListener("scroll",function(e){var w=e.target;if(w.classList&&w.classList.contains("table-wrap")){end(w);}},true);
 window.addEventListener("resize",mark);mark();})();`
 
+// noScriptCSS stands in for tableScript where scripts do not run: a
+// table box shades the edge beyond which its table goes on (a shadow
+// the box's background draws at each edge, covered by white that
+// scrolls with the table where the table ends there), so a table wider
+// than the box still shows that it scrolls sideways, without the note.
+// The cells' backgrounds are made translucent so that the shadow shows
+// through them (the same greys on white).
+const noScriptCSS = `.table-wrap{background:linear-gradient(to right,#fff 40%,rgba(255,255,255,0)) left/3em 100% no-repeat local,linear-gradient(to left,#fff 40%,rgba(255,255,255,0)) right/3em 100% no-repeat local,radial-gradient(farthest-side at 0 50%,rgba(0,0,0,0.3),rgba(0,0,0,0)) left/1em 100% no-repeat scroll,radial-gradient(farthest-side at 100% 50%,rgba(0,0,0,0.3),rgba(0,0,0,0)) right/1em 100% no-repeat scroll}
+.table-wrap th{background:rgba(0,0,0,0.05)}.table-wrap tr:nth-child(even) td{background:rgba(0,0,0,0.02)}@media print{.table-wrap{background:none}}`
+
 // drawScript draws one chart, marks its element with data-rendered="1"
 // and keeps the chart and its option for the export buttons: PNG from the
 // drawn chart, SVG from a copy drawn once, off screen, by the library's SVG
@@ -92,7 +102,7 @@ func (d *doc) html(title string) ([]byte, error) {
 	out.WriteString("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n")
 	out.WriteString("<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n<title>")
 	out.WriteString(html.EscapeString(title))
-	out.WriteString("</title>\n<style>" + css + "</style>\n")
+	out.WriteString("</title>\n<style>" + css + "</style>\n<noscript><style>" + noScriptCSS + "</style></noscript>\n")
 	out.WriteString("<script>\n" + errorScript + "\n</script>\n</head>\n<body>\n<div id=\"js-errors\" role=\"alert\"></div>\n")
 	for _, pt := range d.parts {
 		if pt.toc || pt.charts == nil {

@@ -173,6 +173,18 @@ func TestTablesScrollAndFitPhones(t *testing.T) {
 		!strings.Contains(css, `.table-wrap.scrolls:not(.at-end){-webkit-mask-image:linear-gradient(to right,`) {
 		t.Errorf("no cue that a wide table scrolls sideways")
 	}
+	// Where scripts do not run, the box shades the edge beyond which the
+	// table goes on: shadows fixed at the box's edges (scroll) under white
+	// that moves with the table (local) and hides a shadow where the table
+	// ends; the cells let the shadow through. In the head, within
+	// noscript, so that the script's cue alone shows where it runs.
+	head, _, _ := strings.Cut(h, "</head>")
+	if !strings.Contains(head, "<noscript><style>"+noScriptCSS+"</style></noscript>") ||
+		!strings.Contains(noScriptCSS, ".table-wrap{background:linear-gradient(to right,#fff 40%,rgba(255,255,255,0)) left/3em 100% no-repeat local,") ||
+		!strings.Contains(noScriptCSS, "radial-gradient(farthest-side at 100% 50%,rgba(0,0,0,0.3),rgba(0,0,0,0)) right/1em 100% no-repeat scroll}") ||
+		!strings.Contains(noScriptCSS, ".table-wrap tr:nth-child(even) td{background:rgba(0,0,0,0.02)}") {
+		t.Errorf("no cue without scripts that a wide table scrolls sideways:\n%s", head)
+	}
 	if strings.Contains(string(d.markdown()), "Scroll sideways") {
 		t.Errorf("report.md has the cue of report.html")
 	}
