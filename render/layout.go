@@ -27,17 +27,17 @@ import (
 // narrowSteps, the widths it may take on a phone, each layout serving
 // from its width up to the next wider step (narrowLayout): the text of a
 // chart of w pixels gets w-chartPadding (the padding the library leaves
-// at each side of the title and legend). The narrowest, narrowText, is a
-// chart 310 pixels wide on a screen of 360; a screen of 400 makes a chart
-// of 350.
+// at each side of the title and legend). A screen of 400 makes a chart
+// of 350, one of 360 a chart of 310; the narrowest, narrowText, is a
+// chart 270 pixels wide on a screen of 320, the narrowest phones'.
 const (
 	chartTextWidth = 440
 	chartNarrow    = 480
 	chartPadding   = 10
-	narrowText     = 310 - chartPadding
+	narrowText     = 270 - chartPadding
 )
 
-var narrowSteps = [...]int{400, 350, narrowText + chartPadding}
+var narrowSteps = [...]int{400, 350, 310, narrowText + chartPadding}
 
 // ellipsis ends a shortened text.
 const ellipsis = "…"

@@ -280,9 +280,9 @@ func stepAt(steps []narrowStep, w int) *narrowStep {
 // phone gives it: on a screen of 400 pixels (a chart of 350) the entries
 // of the calibration chart make two rows where a chart of 310 (a screen
 // of 360) needs three, and the plot's bottom margin and the chart's
-// height leave room for two there, three at 310, so that the x axis's
-// name does not stand a row's height above the legend, nor a legend is
-// cut at 360.
+// height leave room for two there, three at 310 and at 270 (a screen of
+// 320), so that the x axis's name does not stand a row's height above
+// the legend, nor a legend is cut at 360.
 func TestNarrowLegendRowsFollowWidth(t *testing.T) {
 	legend := []string{"very_unsafe", "unsafe", "neutral", "safe", "very_safe", "expected", "observed"}
 	at := func(chart int) int { return legendRows(legend, float64(chart-chartPadding), legendTextMax) }
@@ -299,7 +299,7 @@ func TestNarrowLegendRowsFollowWidth(t *testing.T) {
 	base, _ := strconv.Atoi(predictionGrid.Bottom)
 	usual := f.height - (at(chartTextWidth+chartPadding)-1)*legendRow // the height with a one-row legend
 	// The chart widths tried, each with the narrowest width of its step.
-	for _, w := range [][2]int{{479, 400}, {400, 400}, {399, 350}, {350, 350}, {349, 310}, {310, 310}} {
+	for _, w := range [][2]int{{479, 400}, {400, 400}, {399, 350}, {350, 350}, {349, 310}, {310, 310}, {309, 270}, {270, 270}} {
 		bottom, height := opt.Grid[0].Bottom, c.height
 		if s := stepAt(c.narrow, w[0]); s != nil {
 			bottom, height = s.option.Grid[0].Bottom, s.height
