@@ -157,8 +157,10 @@ func writePowerHypotheses(d *doc, op simulate.OutcomePower) {
 	if lo == hi {
 		lo, hi = lo/2, lo*3/2
 	}
-	fr := d.frame(chartFrame{title: "Power against sample size", subtitle: op.Outcome + ", simulated", height: 380,
-		grid: opts.Grid{Left: "8%", Right: "6%", Bottom: "68"}, legend: legend})
+	// The bottom margin holds the legend some 18 pixels below the axis's
+	// labels (the axis's name, n, stands at its end).
+	fr := d.frame(chartFrame{title: "Power against sample size", subtitle: op.Outcome + ", simulated", height: 344,
+		grid: opts.Grid{Left: "8%", Right: "6%", Bottom: "32"}, legend: legend})
 	l.SetGlobalOptions(append(fr.opts(),
 		charts.WithXAxisOpts(opts.XAxis{Name: "n", Type: "value", Min: val(lo), Max: val(hi)}),
 		charts.WithYAxisOpts(opts.YAxis{Name: "power", Type: "value", Min: 0, Max: 1}))...)
