@@ -77,10 +77,11 @@ func criteriaChart(d *doc, or *runner.OutcomeResult, sampling bool) *chart {
 		legend = append(legend, legendRejected)
 	}
 	// The model names turn when they crowd the axis; the first one's
-	// reach to the left sets the left margin.
+	// reach to the left sets the left margin. The bottom margin holds the
+	// legend some 22 pixels below the turned names.
 	labels := layoutCategories(names, 11, chartTextWidth-60, 240)
-	fr := d.frame(chartFrame{title: "Information criteria of the candidate models", subtitle: or.Outcome.Label, height: 440,
-		grid: opts.Grid{Left: leftFor(labels, "4%"), Right: "4%", Top: "70", Bottom: "50"}, legend: legend})
+	fr := d.frame(chartFrame{title: "Information criteria of the candidate models", subtitle: or.Outcome.Label, height: 426,
+		grid: opts.Grid{Left: leftFor(labels, "4%"), Right: "4%", Top: "70", Bottom: "36"}, legend: legend})
 	s := charts.NewScatter()
 	s.SetGlobalOptions(append(fr.opts(),
 		charts.WithXAxisOpts(opts.XAxis{Type: "category", AxisLabel: labels.axisLabel(11)}),
