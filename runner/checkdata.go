@@ -31,7 +31,7 @@ func CheckData(p *plan.Plan) ([]string, error) {
 			return nil, err
 		}
 		warnings = append(warnings, unlinkedWarnings(r.Outcome, unlinked)...)
-		if err := a.CheckDesign(r, ld.Design, ld.Data, ld.FitData); err != nil {
+		if err := a.checkDesignAsRun(r, ld); err != nil {
 			return nil, err
 		}
 		warnings = append(warnings, pointWarnings(r.Outcome, ld.Data)...)
@@ -101,6 +101,21 @@ func CheckData(p *plan.Plan) ([]string, error) {
 		}
 	}
 	return warnings, nil
+}
+
+// checkDesignAsRun checks outcome r's design before any fit as run does
+// (CheckDesign on ld, checkLoad's data): with imputed sets made elsewhere
+// (data.imputed) on the sets, as run fits them (checkImputedDesign), not
+// on the data file's complete rows, which run fits nowhere.
+func (a *Analysis) checkDesignAsRun(r Reading, ld *Loaded) error {
+	if a.Imputed == nil {
+		return a.CheckDesign(r, ld.Design, ld.Data, ld.FitData)
+	}
+	run, sets, dz, err := imputedSets(a, r)
+	if err != nil {
+		return err
+	}
+	return a.checkImputedDesign(r, dz, sets[0], run.Sets)
 }
 
 // checkLoad reads outcome r's data for check: its complete rows (Load).

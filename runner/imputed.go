@@ -806,7 +806,7 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 			or.Notes = append(or.Notes, "Imputation: "+n)
 		}
 	}
-	if err := decideImputed(an, r, or, sets, opt); err != nil {
+	if err := decideImputed(an, r, or, sets, opt, true); err != nil {
 		return nil, err
 	}
 	if w := an.FewRowLevels(r, dz, or.levelRows(), or.Fits); w != "" {
@@ -834,18 +834,17 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 // sets their data): the partial sets (stepwise on pooled fits), the grid
 // fitted on every set and pooled, the pooled tests and the rules, in
 // order. The resamples of selection_stability on data the program
-// imputes take this same path.
-func decideImputed(an *Analysis, r Reading, or *OutcomeResult, sets []*data.Dataset, opt Options) error {
+// imputes take this same path (primary false); the primary sets are
+// first refused when no candidate can be fitted on them
+// (someCandidateFits), as the data of a run without imputation are
+// (CheckDesign), and a resample's are not.
+func decideImputed(an *Analysis, r Reading, or *OutcomeResult, sets []*data.Dataset, opt Options, primary bool) error {
 	run, dz, ds := or.Imputed, or.Design, or.Data
-	for k, d := range run.Sets {
-		if err := fit.CheckDesign(d); err != nil {
-			if _, _, ok := r.collinearTerms(err, dz, an.Source); ok {
-				return an.designError(r, dz, "", err, fmt.Sprintf("imputed set %d", k+1))
-			}
-			return fmt.Errorf("%s: outcome %q, imputed set %d: %v", an.Source, or.Outcome.Column, k+1, err)
-		}
+	first := ds
+	if !primary {
+		first = nil
 	}
-	if err := an.checkGridLevels(r, dz); err != nil {
+	if err := an.checkImputedDesign(r, dz, first, run.Sets); err != nil {
 		return err
 	}
 	backward := an.Models.Backward()
@@ -868,6 +867,29 @@ func decideImputed(an *Analysis, r Reading, or *OutcomeResult, sets []*data.Data
 	}
 	applyRules(an, or)
 	return nil
+}
+
+// checkImputedDesign checks the fit input of imputed sets (fits, their
+// data; ds the first set's rows) before any model is fitted, as
+// CheckDesign checks one data set's: a constant or collinear term in a
+// set, no candidate that can be fitted on every set (someCandidateFits;
+// not for a resample, ds nil), a grid level no row used has. run and
+// check take it alike.
+func (an *Analysis) checkImputedDesign(r Reading, dz *design.Design, ds *data.Dataset, fits []*fit.Data) error {
+	for k, d := range fits {
+		if err := fit.CheckDesign(d); err != nil {
+			if _, _, ok := r.collinearTerms(err, dz, an.Source); ok {
+				return an.designError(r, dz, "", err, fmt.Sprintf("imputed set %d", k+1))
+			}
+			return fmt.Errorf("%s: outcome %q, imputed set %d: %v", an.Source, r.Outcome, k+1, err)
+		}
+	}
+	if ds != nil {
+		if err := an.someCandidateFits(dz, fits...); err != nil {
+			return an.designError(r, dz, ds.FewRowsSentence(), err, "")
+		}
+	}
+	return an.checkGridLevels(r, dz)
 }
 
 // ImputedClusterNote says which references the clustered errors take on

@@ -734,42 +734,97 @@ func (a *Analysis) CheckDesign(r Reading, dz *design.Design, ds *data.Dataset, d
 }
 
 // someCandidateFits refuses a plan none of whose candidate models can be
-// fitted on d because each has more parameters than observations
+// fitted because each has more parameters than observations
 // (fit.TooFewObservations, the refusal each fit would make), naming the
-// candidate with the fewest; nil when one can, or when some candidates
-// are known only after fits (partial or constrained models of a partial
-// set selected stepwise, which gridModels leaves out). Such a run has
-// nothing to choose from, as when a term is constant for every model, so
-// it is refused before any fit rather than reported with every candidate
-// not fitted.
-func (a *Analysis) someCandidateFits(dz *design.Design, d *fit.Data) error {
-	if a.Models.Partial.Select != nil && slices.ContainsFunc(a.Models.Effects, func(s fit.Structure) bool {
-		return s == fit.PartialEffects || s == fit.ConstrainedEffects
-	}) {
-		return nil
+// candidate with the fewest; nil when one can. Such a run has nothing to
+// choose from, as when a term is constant for every model, so it is
+// refused before any fit rather than reported with every candidate not
+// fitted. sets are the data the candidates are fitted on: one, or the
+// imputed sets, on each of which a candidate is fitted and pooled, so a
+// candidate refused on one set is not fitted; the parameters and, but
+// for imputed frequency weights, the observations do not depend on the
+// values imputed, so this is known before any fit on imputed data too.
+//
+// The partial and constrained models of a partial set selected stepwise
+// are known only after the selection's fits (gridModels leaves them
+// out), but each has at least the parameters of the parallel model of
+// its approach and link (one slope per column, plus J-2 for each column
+// of the partial set or each constraint group): when that parallel
+// model is refused they are too. When it is not, it is not decided here:
+// a selection keeping some columns gives partial models of at least J-2
+// more parameters, but one keeping none gives no partial model at all
+// (it would equal the parallel one, not a candidate unless listed), so
+// whether a candidate can be fitted, and why not, depends on the set the
+// selection's fits keep, and the candidates are judged one by one after
+// them, each not fitted saying why (exit 3 when none is left).
+func (a *Analysis) someCandidateFits(dz *design.Design, sets ...*fit.Data) error {
+	type candidate struct {
+		m     fit.Model
+		bound bool // the parallel model bounding stepwise partial or constrained ones
 	}
-	var fewest error
-	least := -1
-	for _, e := range gridModels(a, termsOf(dz)) {
+	var cands []candidate
+	terms := termsOf(dz)
+	for _, e := range gridModels(a, terms) {
 		if e.Auxiliary || e.Err != "" {
 			continue
 		}
-		m, err := e.Spec.Model()
-		if err != nil {
-			continue
+		if m, err := e.Spec.Model(); err == nil {
+			cands = append(cands, candidate{m: m})
 		}
-		refused := fit.TooFewObservations(d, m, a.Fit.Sampling)
+	}
+	if a.Models.Partial.Select != nil && slices.ContainsFunc(a.Models.Effects, func(s fit.Structure) bool {
+		return s == fit.PartialEffects || s == fit.ConstrainedEffects
+	}) {
+		cols := allColumns(terms)
+		for _, ap := range a.Models.Approaches {
+			bw := a.Models.Backward() && ap == fit.Stage
+			for _, l := range a.Models.Links {
+				spec, err := EffectsSpec(ap, bw, l, fit.ParallelEffects, cols, nil, nil)
+				if err != nil {
+					return nil // not known before the fits
+				}
+				m, err := spec.Model()
+				if err != nil {
+					return nil
+				}
+				cands = append(cands, candidate{m: m, bound: true})
+			}
+		}
+	}
+	var fewest error
+	least := -1
+	for _, c := range cands {
+		var refused error
+		var on []int // the imputed sets refusing it
+		for k, d := range sets {
+			if err := fit.TooFewObservations(d, c.m, a.Fit.Sampling); err != nil {
+				if refused == nil {
+					refused = err
+				}
+				on = append(on, k+1)
+			}
+		}
 		if refused == nil {
 			return nil
 		}
-		if P, err := fit.NumParams(m, d.J, d.Predictors); err == nil && (least < 0 || P < least) {
-			least, fewest = P, refused
+		P, err := fit.NumParams(c.m, sets[0].J, sets[0].Predictors)
+		if err != nil || least >= 0 && P >= least {
+			continue
 		}
+		if len(on) < len(sets) {
+			refused = fmt.Errorf("%w, in imputed set %d", refused, on[0])
+		}
+		if c.bound {
+			refused = fmt.Errorf("the partial and constrained models, their partial set selected stepwise, have at least the parameters of the parallel model of their approach and link, and %w", refused)
+		} else {
+			refused = fmt.Errorf("the one with the fewest: %w", refused)
+		}
+		least, fewest = P, refused
 	}
 	if fewest == nil {
 		return nil
 	}
-	return fmt.Errorf("no candidate model can be fitted, each having more parameters than observations (the one with the fewest: %w)", fewest)
+	return fmt.Errorf("no candidate model can be fitted, each having more parameters than observations (%w)", fewest)
 }
 
 // checkGridLevels refuses a level that a closeness rule's grid lists and

@@ -692,7 +692,7 @@ func resampleImputedOutcome(an *Analysis, rd Reading, primary *OutcomeResult, n 
 	run.obs = completeObs(run.Sets[0], an.Errors.Sampling)
 	first := *sets[0]
 	or = &OutcomeResult{Outcome: primary.Outcome, Data: &first, Observed: ds, FitData: run.Sets[0], Design: dz, Terms: primary.Terms, dataOptions: primary.dataOptions, Imputed: run}
-	if err := decideImputed(an, rd, or, sets, Options{Workers: 1}); err != nil {
+	if err := decideImputed(an, rd, or, sets, Options{Workers: 1}, false); err != nil {
 		return nil, lacked, err.Error()
 	}
 	testHypotheses(an, or)

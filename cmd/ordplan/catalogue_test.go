@@ -66,6 +66,41 @@ rules:
   - choose: {by: aic}
 `
 
+// imputedNoCandidate checks M3 on imputed data: 8 rows, one value of a
+// missing, 7 predictors (9 parameters at least), imputed by the program
+// (data.missing: impute) or given as two stacked imputed sets
+// (data.imputed): the parameters and observations do not depend on the
+// values imputed, so check and run refuse before any fit, as on one data
+// set. The stacked sets' 8 rows are judged, not the data file's 7
+// complete ones, which run fits nowhere.
+func imputedNoCandidate(t *testing.T, dir string) {
+	t.Helper()
+	rows := []string{
+		"1,0.09,1.25,-0.93,0.99,-0.26,-0.26,1.90", "2,0.16,-0.04,0.73,1.13,-0.03,0.59,-0.97",
+		"3,,-0.44,-1.33,-1.51,-1.63,-0.24,-0.17", "1,-0.32,0.07,-1.34,-0.08,0.24,0.75,-0.85",
+		"2,-0.40,-2.02,-0.50,-2.20,-1.42,1.10,-2.20", "3,0.80,0.33,-0.31,0.46,0.53,1.05,-0.23",
+		"1,-0.59,-0.60,-0.99,-0.04,-0.79,1.07,-1.87", "2,-1.09,-0.95,-2.09,1.90,-2.41,-0.28,-0.53",
+	}
+	os.WriteFile(filepath.Join(dir, "M3few.csv"), []byte("y,a,b,c,d,e,g,h\n"+strings.Join(rows, "\n")+"\n"), 0o644)
+	stack := "imp,y,a,b,c,d,e,g,h\n"
+	for k := 1; k <= 2; k++ {
+		for _, r := range rows {
+			stack += fmt.Sprintf("%d,%s\n", k, strings.Replace(r, "3,,", fmt.Sprintf("3,0.%d,", k), 1))
+		}
+	}
+	os.WriteFile(filepath.Join(dir, "M3stack.csv"), []byte(stack), 0o644)
+	want := `M3few.csv: outcome "y": no candidate model can be fitted, each having more parameters than observations (the one with the fewest: model cumulative/parallel/logit has 9 parameters but only 8 observations)`
+	for _, how := range []string{"missing: impute", "imputed: {file: M3stack.csv, column: imp}"} {
+		pl := filepath.Join(dir, "M3imp.yaml")
+		os.WriteFile(pl, []byte(edit("file: d.csv", "file: M3few.csv\n  "+how, "[a, b]", "[a, b, c, d, e, g, h]")), 0o644)
+		for _, args := range [][]string{{"check", pl}, {"run", pl, "--out", filepath.Join(dir, "M3imp-out"), "--quiet"}} {
+			if _, e, code := runCLI(args...); code != 1 || !strings.Contains(e, want) {
+				t.Errorf("%s with %s: exit %d:\n%s\nwant exit 1 with %q", args[0], how, code, e, want)
+			}
+		}
+	}
+}
+
 // clusterData writes clu.csv beside the plan: d.csv with cluster columns
 // dealing its rows into 2, 3, 5 and 60 clusters (two, three, five, sixty).
 func clusterData(t *testing.T, dir, id string) {
@@ -2117,6 +2152,7 @@ func catalogue(dir string) (items []badInput) {
 				// and run refuse before any fit, saying why so few rows
 				// remain; with 5 the parallel models are fitted and the
 				// nonparallel ones (6 parameters) are not.
+				imputedNoCandidate(t, dir)
 				for _, extra := range []int{0, 2} {
 					seen := map[string]bool{}
 					more := 0
@@ -2142,13 +2178,23 @@ func catalogue(dir string) (items []badInput) {
 							t.Errorf("%s on %d rows: exit %d:\n%s\nwant refused: %v, with %q", args[0], kept, code, e, extra == 0, want)
 						}
 					}
-					if extra == 0 {
-						// With a partial set selected stepwise its models are
-						// known only after fits: judged model by model, as
-						// before (no model chosen, exit 3).
-						os.WriteFile(pl, []byte(edit("file: d.csv", "file: M3loss.csv", "[a, b]", "[a, z]", "effects: [parallel, nonparallel]", "effects: [parallel, partial]\n  partial: {select: {method: stepwise, alpha: 0.05, test: wald}}")), 0o644)
-						if _, e, code := runCLI("run", pl, "--out", filepath.Join(dir, "M3step-out"), "--quiet"); code != exitNoChoice || strings.Contains(e, "no candidate model") {
-							t.Errorf("stepwise partial set on 3 rows: exit %d:\n%s", code, e)
+					// With a partial set selected stepwise its partial
+					// models are known only after fits, but each has at
+					// least the parameters of the parallel model of its
+					// approach and link: refused when that one cannot be
+					// fitted (3 rows), left to the fits when it can (5).
+					stepwise := func(effects string) {
+						os.WriteFile(pl, []byte(edit("file: d.csv", "file: M3loss.csv", "[a, b]", "[a, z]", "effects: [parallel, nonparallel]", "effects: "+effects+"\n  partial: {select: {method: stepwise, alpha: 0.05, test: wald}}")), 0o644)
+					}
+					bound := fmt.Sprintf(`M3loss.csv: outcome "y": no candidate model can be fitted, each having more parameters than observations (the partial and constrained models, their partial set selected stepwise, have at least the parameters of the parallel model of their approach and link, and model cumulative/parallel/logit has 4 parameters but only %d observations). Only %d of the 120 rows read are used`, kept, kept)
+					for _, c := range []struct{ effects, want string }{{"[parallel, partial]", want}, {"[partial, nonparallel]", bound}} {
+						stepwise(c.effects)
+						for _, args := range [][]string{{"check", pl}, {"run", pl, "--out", filepath.Join(dir, "M3step-out"), "--quiet"}} {
+							_, e, code := runCLI(args...)
+							refused := code == 1 && strings.Contains(e, c.want)
+							if refused != (extra == 0) || extra > 0 && strings.Contains(e, "no candidate model") {
+								t.Errorf("%s, stepwise partial set, effects %s, on %d rows: exit %d:\n%s\nwant refused: %v, with %q", args[0], c.effects, kept, code, e, extra == 0, c.want)
+							}
 						}
 					}
 					if extra > 0 {
