@@ -201,14 +201,21 @@ func logDiffCDF(l Link, a, b float64) float64 {
 	return tb + log1mexp(ta-tb)
 }
 
-// log1mexp is log(1 - e^x) for x <= 0: from expm1 above -log 2, where
-// 1 - e^x is small; beyond, log1p of -e^x, at least -1/2 (fastLog1p's
-// range).
+// log1mexp is log(1 - e^x) for x <= 0, e^x - 1 and e^x from one
+// expm1Exp (log1mexpOf).
 func log1mexp(x float64) float64 {
+	m, e := expm1Exp(x)
+	return log1mexpOf(x, m, e)
+}
+
+// log1mexpOf is log(1 - e^x) for x <= 0 from m = e^x - 1 and e = e^x:
+// the logarithm of -m above -log 2, where 1 - e^x is small; beyond, log1p
+// of -e, at least -1/2 (fastLog1p's range).
+func log1mexpOf(x, m, e float64) float64 {
 	if x > -math.Ln2 {
-		return fastLog(-math.Expm1(x))
+		return fastLog(-m)
 	}
-	return fastLog1p(-fastExp(x))
+	return fastLog1p(-e)
 }
 
 // tailRange is the equations lo..hi-1 whose log-tails make log P(y = c)

@@ -189,6 +189,36 @@ func fastExp(x float64) float64 {
 	return v
 }
 
+// expm1Exp returns e^x - 1 and e^x (each within 0.97 ulp of math/big in
+// fastmath_test.go) from one evaluation of fastExp's table: e^x = S (1 +
+// p) with S = 2^k 2^(j/N) and p = e^r - 1 (the table's remainder
+// included), so e^x - 1 = (S - 1) + S p, S - 1 exact where S lies in
+// [1/2, 2] (Sterbenz) and e^x - 1 at least 1/2 below, S p added to it
+// with one rounding (FMA). Near 0 e^x - 1 is about r itself, so what
+// fastExp leaves at 2^-60 of 1 counts here: r's reduction is kept as its
+// exact part and the remainder (rh, rl), the remainder's product with r
+// kept, and p takes one term more (r^6/720; the next, r^6/5040 of r, is
+// below 2^-60). e^x may differ from fastExp's in its last bit. Package
+// math's expm1 (and fastExp) outside [-700, 708] and for NaN. Package
+// math's expm1 branches on its argument's size and divides: the row
+// kernels' middle categories and cloglog tails took it at every row.
+func expm1Exp(x float64) (m, e float64) {
+	if !(x >= -expSmall && x <= expFast) {
+		return math.Expm1(x), fastExp(x)
+	}
+	kd := x*(expN/math.Ln2) + expShift
+	ki := math.Float64bits(kd)
+	kd -= expShift
+	rh := x - kd*(ln2Hi/expN) // exact
+	rl := -kd * (ln2Lo / expN)
+	r := rh + rl
+	t := &expTable[ki&(expN-1)]
+	scale := math.Float64frombits(math.Float64bits(t.hi) + (ki>>expTableBits)<<52)
+	r2 := r * r
+	p := rh + (rl + t.tail*(1+r) + r2*(1.0/2+r*(1.0/6)) + r2*r2*(1.0/24+r*(1.0/120)+r2*(1.0/720)))
+	return math.FMA(scale, p, scale-1), math.FMA(scale, p, scale)
+}
+
 // expNegAbsTo sets dst[i] = fastExp(-|src[i]|), bit for bit (expTo): the
 // logit kernels' e^-|z| of a block's rows. dst has at least len(src)
 // values.

@@ -101,6 +101,25 @@ func refExp(x float64) *big.Float {
 	return sum.SetMantExp(sum, int(n))
 }
 
+// refExpm1 is e^x - 1 at ulpPrec bits: its series for tiny x, else
+// refExp(x) - 1 (at most 30 of its 256 bits lost to the cancellation).
+func refExpm1(x float64) *big.Float {
+	if math.Abs(x) < 0x1p-30 {
+		// x + x^2/2 + ... + x^8/8!: the next term is below 2^-240 relative.
+		bx := bigF(x)
+		sum := new(big.Float).SetPrec(ulpPrec).Set(bx)
+		pw := new(big.Float).SetPrec(ulpPrec).Set(bx)
+		for k := int64(2); k <= 8; k++ {
+			pw.Mul(pw, bx)
+			pw.Quo(pw, new(big.Float).SetInt64(k))
+			sum.Add(sum, pw)
+		}
+		return sum
+	}
+	e := refExp(x)
+	return e.Sub(e, new(big.Float).SetInt64(1))
+}
+
 // ulpErr is |got - ref| in ulps of ref (ulps of the smallest normal
 // number's exponent below it).
 func ulpErr(got float64, ref *big.Float) float64 {
@@ -170,6 +189,37 @@ func fastCases() []fastCase {
 			},
 			special: []float64{math.NaN(), math.Inf(1), math.Inf(-1), 710, 709.9, -746, -800, 1000, -1000, -708.0000000001, -744.4, -745.1},
 			edges:   []float64{-707.1009947777807, -700.0000000001, -699.9999999999, -707.9999, 708.0000000001, 709.5, 709.78, 709.7827128933839, 709.782712893384, 709.7827128933841, 709.79, math.Copysign(0, -1), 5e-324, -5e-324, 1e-300, -1e-300, 0x1p-53, -0x1p-54, 1, -1, 708, -708, 707.99999, -707.99999, 0.5 * ln2N, -0.5 * ln2N, ln2N, 64 * ln2N, 127.5 * ln2N, 700, -700},
+			maxULP:  1,
+		},
+		{
+			// e^x - 1 of expm1Exp, the kernels' middle categories' and
+			// cloglog tails' (their arguments at most 0; positive ones
+			// too for the whole range)
+			name: "expm1", fn: func(x float64) float64 { m, _ := expm1Exp(x); return m }, std: math.Expm1, ref: refExpm1,
+			draws: map[string]func(r *rand.Rand) float64{
+				"uniform [-745, 710]": func(r *rand.Rand) float64 { return -745 + 1455*r.Float64() },
+				"uniform [-8, 8]":     func(r *rand.Rand) float64 { return -8 + 16*r.Float64() },
+				"uniform [-log 2, 0]": func(r *rand.Rand) float64 { return -math.Ln2 * r.Float64() },
+				"±2^[-60, 0]":         func(r *rand.Rand) float64 { return math.Copysign(logUniform(r, -60, 0), r.Float64()-0.5) },
+				"-2^[-1074, 10]":      func(r *rand.Rand) float64 { return -logUniform(r, -1074, 10) },
+				"near k ln2/128 (boundary)": func(r *rand.Rand) float64 {
+					return (float64(r.IntN(20000)-10000) + 0.5) * ln2N * (1 + 1e-15*(r.Float64()-0.5))
+				},
+			},
+			special: []float64{math.NaN(), math.Inf(1), math.Inf(-1), 710, 709.9, 1000, -700.0000000001, -746, -800, -1000},
+			edges:   []float64{0, 5e-324, -5e-324, 1e-300, -1e-300, 0x1p-53, -0x1p-54, 0.5 * ln2N, -0.5 * ln2N, math.Nextafter(0.5*ln2N, 1), math.Nextafter(-0.5*ln2N, -1), ln2N, -ln2N, 1.5 * ln2N, -1.5 * ln2N, -math.Ln2, math.Nextafter(-math.Ln2, 0), -math.Ln2 / 2, math.Ln2, 1, -1, 708, -700, 707.99999, -699.99999},
+			maxULP:  1,
+		},
+		{
+			// e^x of expm1Exp (one term more than fastExp's)
+			name: "exp of expm1Exp", fn: func(x float64) float64 { _, e := expm1Exp(x); return e }, std: math.Exp, ref: refExp,
+			draws: map[string]func(r *rand.Rand) float64{
+				"uniform [-745, 710]": func(r *rand.Rand) float64 { return -745 + 1455*r.Float64() },
+				"uniform [-8, 8]":     func(r *rand.Rand) float64 { return -8 + 16*r.Float64() },
+				"±2^[-60, 0]":         func(r *rand.Rand) float64 { return math.Copysign(logUniform(r, -60, 0), r.Float64()-0.5) },
+			},
+			special: []float64{math.NaN(), math.Inf(1), math.Inf(-1), 710, 1000, -746, -800, -1000},
+			edges:   []float64{0, -5e-324, 0.5 * ln2N, -0.5 * ln2N, -math.Ln2, 708, -700, 707.99999, -699.99999},
 			maxULP:  1,
 		},
 		{

@@ -163,21 +163,17 @@ func (l Link) median() float64 {
 var logLog2 = math.Log(math.Ln2)
 
 // cloglogLower returns u = e^z, e = e^-u, F = 1 - e^-u and log F under
-// the cloglog link: F as 1 - e from u = 1 on (e at most 1/e, so F keeps
-// its digits), from expm1 below; u = 0 (F then u to the last digit) gives
-// log F = z, e and F unset.
+// the cloglog link: e and F from one expm1Exp (F keeps its digits where u
+// is small), log F = log(1 - e^-u) as log1mexpOf forms it (log1p of -e
+// from u = log 2 on, so that log F keeps its digits where F nears 1); u =
+// 0 (F then u to the last digit) gives log F = z, e and F unset.
 func cloglogLower(z float64) (u, e, F, v float64) {
 	u = fastExp(z)
 	if u == 0 {
 		return 0, 0, 0, z
 	}
-	e = fastExp(-u)
-	if u >= 1 {
-		F = 1 - e
-	} else {
-		F = -math.Expm1(-u)
-	}
-	return u, e, F, fastLog(F)
+	m, e := expm1Exp(-u)
+	return u, e, -m, log1mexpOf(-u, m, e)
 }
 
 // ratio returns psi = log F(z) - log(1-F(z)), the log-odds of the
@@ -421,12 +417,16 @@ func logitFarMiddle(pa, pb logitPoint) (m middle, ok bool) {
 // points (the path of logitMiddle's far tails).
 func logitDiff(pa, pb logitPoint) float64 {
 	mid := 0.5 * (pa.z + pb.z)
+	// log(1 - e^x) from package math's expm1, as this path has always
+	// taken it (the logit kernels' values unchanged; the other links' take
+	// expm1Exp, log1mexp)
+	l1me := func(x float64) float64 { return log1mexpOf(x, math.Expm1(x), fastExp(x)) }
 	if mid <= 0 || (mid < 1e-15 && Logit.cdf(mid) <= 0.5) { // F(mid) <= 1/2
 		la, lb := pa.logF(), pb.logF()
-		return lb + log1mexp(la-lb)
+		return lb + l1me(la-lb)
 	}
 	ua, ub := pa.logFc(), pb.logFc()
-	return ua + log1mexp(ub-ua)
+	return ua + l1me(ub-ua)
 }
 
 // logistic returns F(z) and 1-F(z) without cancellation.
@@ -548,10 +548,9 @@ func bend(u float64) float64 {
 	return (math.Expm1(-u) + u) / u
 }
 
-// bendOf is bend(u) with F = 1 - e^-u at hand (as cloglogLower forms it:
-// -expm1(-u) below u = 1, the same value as bend bit for bit; 1 - e^-u
-// from 1 on, within an ulp of it), which it takes from 1/2 on instead of
-// a second expm1.
+// bendOf is bend(u) with F = 1 - e^-u at hand (as cloglogLower forms it,
+// from expm1Exp: within an ulp of package math's expm1), which it takes
+// from 1/2 on instead of a second expm1.
 func bendOf(u, F float64) float64 {
 	if u < 0.5 {
 		c := &bendTerms

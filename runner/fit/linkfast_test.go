@@ -44,7 +44,10 @@ func mathLower(l Link, z float64) tail {
 		if a == 0 {
 			d2 = 0
 		}
-		return tail{math.Log(F), a, d2}
+		// log F = log(1 - e^-u): log1p of -e^-u from u = log 2 on, so
+		// that it keeps its digits where F nears 1 (the fast tail forms
+		// it so)
+		return tail{mathLog1mexp(-u), a, d2}
 	case Loglog:
 		t := mathUpper(Cloglog, -z)
 		return tail{t.v, -t.d1, t.d2}
@@ -181,9 +184,12 @@ func TestLinkFastAgreesWithMath(t *testing.T) {
 				}
 				// A probit tail's value near 0 is -Q, Q = 1 - F the other
 				// tail, whose relative error from z's rounding is z^2
-				// times z's (z phi/Q ~ z^2): its scale takes kappa.
+				// times z's (z phi/Q ~ z^2): its scale takes kappa. So does
+				// a cloglog tail's log F = log1p(-e^-u) near 0, about
+				// -e^-u, which carries u's rounding times u (and the
+				// loglog's mirror image).
 				kv := 1.0
-				if l == Probit {
+				if l != Cauchy {
 					kv = kz
 				}
 				near("tail value", l, z, got.v, want.v, 1e-14, kv*math.Abs(want.v))

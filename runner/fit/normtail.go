@@ -272,8 +272,8 @@ func cauchyNear(z float64, order int) (v, lam, dlam float64) {
 // false otherwise): log P as logDiffCDF forms it, bit for bit, and the
 // ratios from the tails' own f/F instead of the densities' exponentials.
 // Below the median (0) P = F(b) (1 - E), E = e^(t_a - t_b), t = log F,
-// so f(b)/P = lam_b / D and f(a)/P = lam_a E / D with D = 1 - E (from
-// expm1 while E > 1/2, as log1mexp takes it); above it, the mirror image:
+// so f(b)/P = lam_b / D and f(a)/P = lam_a E / D with D = 1 - E (D and E
+// from one expm1Exp, as log1mexp takes them); above it, the mirror image:
 // the links are symmetric, P(a, b) = F(-a) - F(-b), so the same with
 // (-b, -a), the ratios and second derivatives swapped.
 func tableBetween(l Link, a, b float64) (m middle, ok, done bool) {
@@ -297,15 +297,9 @@ func tableBetween(l Link, a, b float64) (m middle, ok, done bool) {
 		tb, lb, _ = cauchyNear(b, 1)
 	}
 	x := ta - tb
-	var D, E, lD float64
-	if x > -math.Ln2 {
-		D = -math.Expm1(x)
-		E, lD = 1-D, fastLog(D)
-	} else {
-		E = fastExp(x)
-		D, lD = 1-E, fastLog1p(-E)
-	}
-	m.lp = tb + lD
+	mx, E := expm1Exp(x)
+	D := -mx
+	m.lp = tb + log1mexpOf(x, mx, E)
 	if math.IsInf(m.lp, -1) || math.IsNaN(m.lp) {
 		return m, false, true
 	}
