@@ -282,6 +282,7 @@ func ResolvePlan(p *plan.Plan) *Analysis {
 		}
 		r := Reading{Outcome: oc.Column, Key: "outcomes: " + oc.Column, CategoriesKey: "categories",
 			Options: readSources(dopt, spec), Design: spec}
+		r.Options.Entries = predictorEntries(p.Path, spec)
 		// A value of the outcome that is not a category (or, without
 		// categories, not an integer code) is fixed in its categories.
 		r.setKey(oc.Column, fmt.Sprintf("outcomes[%d].categories", i))
@@ -302,6 +303,44 @@ func ResolvePlan(p *plan.Plan) *Analysis {
 		a.Outcomes = append(a.Outcomes, r)
 	}
 	return a
+}
+
+// predictorEntries are the entries of the plan (file) that read each
+// column of spec's terms, an interaction's entry the columns of its
+// parts, each with its place (data.Options.Entries).
+func predictorEntries(file string, spec design.Spec) map[string][]data.Entry {
+	byName := map[string]design.TermSpec{}
+	for _, t := range spec.Terms {
+		byName[t.Name] = t
+	}
+	var columns func(t design.TermSpec, depth int) []string
+	columns = func(t design.TermSpec, depth int) []string {
+		if t.Source != "" || depth > len(spec.Terms) {
+			return []string{t.Source}
+		}
+		var out []string
+		for _, n := range t.Interact {
+			out = append(out, columns(byName[n], depth+1)...)
+		}
+		return out
+	}
+	out := map[string][]data.Entry{}
+	for _, t := range spec.Terms {
+		if t.Key == "" {
+			continue
+		}
+		where := ""
+		if t.Line > 0 {
+			where = fmt.Sprintf("%s:%d:%d", file, t.Line, t.Col)
+		}
+		e := data.Entry{Key: t.Key, Where: where}
+		for _, c := range columns(t, 0) {
+			if c != "" && !slices.Contains(out[c], e) {
+				out[c] = append(out[c], e)
+			}
+		}
+	}
+	return out
 }
 
 // Imputes reports whether the program imputes the missing values itself

@@ -468,7 +468,7 @@ func mistakeItems(dir string) []badInput {
 				if err := os.WriteFile(few, []byte(strings.Replace(strings.Replace(string(b), "W34.csv", "W34few.csv", 1), "  - column: y\n", "  - column: y\n    categories: [1, 2, 3]\n", 1)), 0o644); err != nil {
 					t.Fatal(err)
 				}
-				want = few + `: outcomes: y: category "3" is declared but never observed in the 2 rows used: 118 of 120 rows dropped for missing values (s: 118). Predictor column "s" is observed in 2 of the 120 rows (118 missing, 98.3%), fewer than half: every row missing it, 118, is dropped (complete cases), so at most 2 rows remain for the fits. Check the column (the one meant, its missing-value markers); if it is this sparse, leave it out of the predictors, or analyse the rows that have it (subset). If these are the rows meant, remove it from categories or merge it with a neighbour`
+				want = few + `: outcomes: y: category "3" is declared but never observed in the 2 rows used: 118 of 120 rows dropped for missing values (s: 118). Rows were lost to the missing values of column "s", read by predictors[2] (` + few + `:7:20). Predictor column "s" is observed in 2 of the 120 rows (118 missing, 98.3%), fewer than half: every row missing it, 118, is dropped (complete cases), so at most 2 rows remain for the fits. Check the column (the one meant, its missing-value markers); if it is this sparse, leave it out of the predictors, or analyse the rows that have it (subset). If these are the rows meant, remove it from categories or merge it with a neighbour`
 				for _, cmd := range []string{"check", "run"} {
 					args := []string{cmd, few}
 					if cmd == "run" {

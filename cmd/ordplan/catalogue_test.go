@@ -1458,9 +1458,11 @@ func catalogue(dir string) (items []badInput) {
 				rowLossRefused(t, dir, "D8loss.csv", "a,z", want)
 				// In a plan the refusal names the plan key behind the rows
 				// dropped (data.missing), not the outcome's categories,
-				// which are not at fault.
+				// which are not at fault, and the sentence names the entry
+				// of predictors whose column lost them, at its place.
 				pl := filepath.Join(dir, "D8loss.yaml")
 				os.WriteFile(pl, []byte(edit("file: d.csv", "file: D8loss.csv", "[a, b]", "[a, z]")), 0o644)
+				want = strings.Replace(want, `). Predictor column`, `). Rows were lost to the missing values of column "z", read by predictors[1] (`+pl+`:6:17). Predictor column`, 1)
 				for _, args := range [][]string{{"check", pl}, {"run", pl, "--out", filepath.Join(dir, "D8loss-out"), "--quiet"}} {
 					cmd := args[0]
 					_, e, code := runCLI(args...)
@@ -2170,7 +2172,7 @@ func catalogue(dir string) (items []badInput) {
 					pl := filepath.Join(dir, "M3loss.yaml")
 					os.WriteFile(pl, []byte(edit("file: d.csv", "file: M3loss.csv", "[a, b]", "[a, z]")), 0o644)
 					kept := 3 + extra
-					want := fmt.Sprintf(`M3loss.csv: outcome "y": no candidate model can be fitted, each having more parameters than observations (the one with the fewest: model cumulative/parallel/logit has 4 parameters but only %d observations). Only %d of the 120 rows read are used: %d of 120 rows dropped for missing values (z: %d). Predictor column "z" is observed in %d of the 120 rows`, kept, kept, 120-kept, 120-kept, kept)
+					want := fmt.Sprintf(`M3loss.csv: outcome "y": no candidate model can be fitted, each having more parameters than observations (the one with the fewest: model cumulative/parallel/logit has 4 parameters but only %d observations). Only %d of the 120 rows read are used: %d of 120 rows dropped for missing values (z: %d). Rows were lost to the missing values of column "z", read by predictors[1] (%s:6:17). Predictor column "z" is observed in %d of the 120 rows`, kept, kept, 120-kept, 120-kept, pl, kept)
 					for _, args := range [][]string{{"check", pl}, {"run", pl, "--out", filepath.Join(dir, "M3loss-out"), "--quiet"}} {
 						_, e, code := runCLI(args...)
 						refused := code == 1 && strings.Contains(e, want)

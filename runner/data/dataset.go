@@ -3,6 +3,8 @@ package data
 import (
 	"fmt"
 	"strings"
+
+	"ordplan/internal/words"
 )
 
 // DropCount is the number of rows dropped because of a missing value in
@@ -91,6 +93,8 @@ type Dataset struct {
 	// observed in fewer than half of the rows (mostlyMissing): check and
 	// run warn of them.
 	MostlyMissing []string
+	// entries are Options.Entries, for FewRowsCause.
+	entries map[string][]Entry
 	// Sheet names the worksheet of a workbook the rows come from, and
 	// what of it is hidden; nil for other files and for parts (each
 	// workbook part's is in Parts).
@@ -179,10 +183,38 @@ func (d *Dataset) FewRowsCause() string {
 		return ""
 	}
 	s := d.DropSummary()
+	if e := d.lostTo(); e != "" {
+		s += ". Rows were lost to the missing values of " + e
+	}
 	if len(d.MostlyMissing) > 0 {
 		s += ". " + strings.Join(d.MostlyMissing, ". ")
 	}
 	return s
+}
+
+// lostTo names, for each column whose missing values dropped rows, the
+// plan's entries that read it (Options.Entries): `column "z", read by
+// predictors[1] (PLAN:6:17) and predictors[3] (PLAN:8:5), and of column
+// "w", read by ...`, in the order of the rows dropped by column; "" when
+// no such column is read by a known entry.
+func (d *Dataset) lostTo() string {
+	var cols []string
+	for _, c := range d.Dropped {
+		es := d.entries[c.Column]
+		if c.Rows == 0 || c.Subset || strings.HasSuffix(c.Column, " = 0") || len(es) == 0 {
+			continue
+		}
+		var named []string
+		for _, e := range es {
+			if e.Where != "" {
+				named = append(named, e.Key+" ("+e.Where+")")
+			} else {
+				named = append(named, e.Key)
+			}
+		}
+		cols = append(cols, fmt.Sprintf("column %q, read by %s", c.Column, words.AndList(named)))
+	}
+	return strings.Join(cols, ", and of ")
 }
 
 // FewRowsSentence is the sentence a refusal that counts the rows used

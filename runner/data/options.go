@@ -70,7 +70,16 @@ type Options struct {
 	// (runner/queue's wholeFiles). They are still sampling weights, so
 	// whole numbers are not asked of them (wholeCounts).
 	Unscaled bool `json:"-"`
+	// Entries are the plan's entries that read each predictor column
+	// (predictors[i], with their places), which a refusal counting the
+	// rows used names when the column's missing values dropped rows
+	// (Dataset.FewRowsSentence); nil outside a plan.
+	Entries map[string][]Entry `json:"-"`
 }
+
+// Entry is a plan entry that reads a column: its key (predictors[1]) and
+// where the plan writes it (PLAN:6:17, or "").
+type Entry struct{ Key, Where string }
 
 // DefaultMissing are the missing-value tokens used when
 // Options.MissingTokens is nil.

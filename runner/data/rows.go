@@ -152,6 +152,7 @@ func (r *reader) finish(t *rowTally, d *Dataset) (*Dataset, error) {
 	}
 	tally(d)
 	d.Missing.byCategory(r.cols, d, t.catMiss, t.catIncomplete)
+	d.entries = opt.Entries
 	if !opt.Part {
 		d.MostlyMissing = mostlyMissing(r.cols, d.Missing, opt.KeepIncomplete)
 		d.Notes = append(d.Notes, d.MostlyMissing...)
