@@ -174,6 +174,11 @@ func (k *kernel) between(a, b float64, derivs bool) (m middle, ok bool) {
 			return m, ok
 		}
 	}
+	if k.link == Cloglog || k.link == Loglog {
+		if m, done := cloglogBetween(k.link, a, b, derivs); done {
+			return m, true
+		}
+	}
 	m.lp = logDiffCDF(k.link, a, b)
 	if math.IsInf(m.lp, -1) || math.IsNaN(m.lp) {
 		return m, false

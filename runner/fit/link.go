@@ -176,6 +176,46 @@ func cloglogLower(z float64) (u, e, F, v float64) {
 	return u, e, -m, log1mexpOf(-u, m, e)
 }
 
+// cloglogBetween is kernel.between for the cloglog and loglog links
+// (with the ratios and second derivatives when derivs is set) from the
+// two boundaries' e^z alone, done false far in the tails (P below e^-700,
+// e^a below 2^-1000 or e^b overflowing: kernel.between's log-space path
+// then). Cloglog: F = 1 - e^-u, u = e^z,
+// so P = e^-ua - e^-ub = e^-ua D with D = 1 - e^-du and du = ub - ua =
+// -ub expm1(a - b) (no cancellation however close a and b); log P = -ua
+// + log(1 - e^-du) (log1mexpOf: two terms of one sign), f = u e^-u, so
+// f(a)/P = ua / D and f(b)/P = ub E / D with E = e^-du, and f'/f = 1 - u.
+// Three exponentials and one logarithm, where the tails' log F (an
+// exponential each, and a logarithm for the lower ones), log1mexp and
+// the ratios from the log-densities took eight and three. Loglog: F(z) =
+// 1 - F_cloglog(-z), so P(a, b) is the cloglog's P(-b, -a), its ratios
+// and second derivatives swapped.
+func cloglogBetween(l Link, a, b float64, derivs bool) (m middle, done bool) {
+	if l == Loglog {
+		a, b = -b, -a
+	}
+	ua, ub := fastExp(a), fastExp(b)
+	mx, _ := expm1Exp(a - b)
+	du := -ub * mx
+	mu, E := expm1Exp(-du)
+	D := -mu
+	m.lp = log1mexpOf(-du, mu, E) - ua
+	if !(m.lp > -700 && ua >= 0x1p-1000 && ub <= math.MaxFloat64) {
+		return m, false
+	}
+	if !derivs {
+		return m, true
+	}
+	inv := 1 / D
+	m.ra, m.rb = ua*inv, ub*E*inv
+	m.setSecond(1-ua, 1-ub)
+	if l == Loglog {
+		m.ra, m.rb = m.rb, m.ra
+		m.haa, m.hbb = m.hbb, m.haa
+	}
+	return m, true
+}
+
 // ratio returns psi = log F(z) - log(1-F(z)), the log-odds of the
 // adjacent comparison's pair of categories, and its first two derivatives
 // in z: lower(z) less upper(z), formed for the probit and cloglog links

@@ -3,6 +3,7 @@ package fit
 import (
 	"fmt"
 	"math"
+	"math/big"
 	"testing"
 )
 
@@ -294,4 +295,94 @@ func TestTailTablesDense(t *testing.T) {
 		}
 		t.Logf("%s: largest differences in 1e-16 (1 + z^2) relative: log F %.3g, f/F %.3g, second derivative %.3g", tc.l, worst[0], worst[1], worst[2])
 	}
+}
+
+// TestCloglogBetweenBig checks the middle categories of cumulative
+// cloglog models (cloglogBetween: log P and the ratios f/P) against
+// math/big (normtail_test.go's bigExpNeg and bigLog at 400 bits: P =
+// e^-ua - e^-ub, u = e^z, f = u e^-u), and the loglog's as the cloglog's
+// mirror image bit for bit, over boundaries a in [-30, 4] (every 1/8 and
+// the next double above) and b - a from 2^-40 to 30, b up to 4.1 (e^b
+// below 64, bigExpNeg's range): close boundaries (du = ub - ua about ub
+// (b - a)) and both sides of log1mexpOf's switch at du = log 2. (The
+// switch to kernel.between's log-space path far in the tails, P below
+// e^-700 or e^a below 2^-1000, lies beyond these; TestLinkFastAgreesWithMath
+// reaches it, against package math.) The inputs are doubles taken as exact, so the errors are the formula's own
+// roundings: e^a and e^b each carry an ulp, which moves log P by ra ua
+// and rb ub times it; the tolerance is 4e-16 (|log P| + ra ua + rb ub)
+// absolute for log P, and 4e-16 (2 + ra ua + rb ub) (1 + du) relative
+// for the ratios (E = e^-du carries du's rounding). The largest errors
+// are logged in units of those tolerances.
+func TestCloglogBetweenBig(t *testing.T) {
+	k := &kernel{cmp: Cumulative, link: Cloglog, nEq: 2}
+	kl := &kernel{cmp: Cumulative, link: Loglog, nEq: 2}
+	bigExp := func(z float64) *big.Float { // e^z, |z| < 64
+		if z <= 0 {
+			return bigExpNeg(bigN(-z))
+		}
+		e := bigExpNeg(bigN(z))
+		return e.Quo(bigN(1), e)
+	}
+	relErr := func(got float64, want *big.Float) float64 {
+		w, _ := want.Float64()
+		if w == 0 {
+			return math.Abs(got)
+		}
+		return math.Abs(got-w) / math.Abs(w)
+	}
+	var worst [3]float64
+	var worstAt [3]string
+	n := 0
+	for i := -30 * 8; i <= 4*8; i++ {
+		a := float64(i) / 8
+		for _, a := range []float64{a, math.Nextafter(a, 5)} {
+			for _, d := range []float64{0x1p-40, 1e-9, 1e-5, 0.001, 0.05, 0.3, 0.69, 0.7, 1, 2.5, 4, 20, 30} {
+				b := a + d
+				m, ok := k.between(a, b, true)
+				ml, okl := kl.between(-b, -a, true)
+				if ok != okl || math.Float64bits(m.lp) != math.Float64bits(ml.lp) || m.ra != ml.rb || m.rb != ml.ra || m.haa != ml.hbb || m.hbb != ml.haa {
+					t.Errorf("loglog between(%g, %g) is not the cloglog's between(%g, %g) mirrored: %+v, %+v", -b, -a, a, b, ml, m)
+				}
+				if _, done := cloglogBetween(Cloglog, a, b, true); !done || !ok || b > 4.1 {
+					// refused, or e^b beyond bigExpNeg's range (64)
+					continue
+				}
+				n++
+				ua, ub := bigExp(a), bigExp(b)
+				ea, eb := bigExpNeg(ua), bigExpNeg(ub)
+				P := new(big.Float).SetPrec(normPrec).Sub(ea, eb)
+				lp := bigLog(P, normPrec)
+				ra := new(big.Float).SetPrec(normPrec).Mul(ua, ea)
+				ra.Quo(ra, P)
+				rb := new(big.Float).SetPrec(normPrec).Mul(ub, eb)
+				rb.Quo(rb, P)
+				fua, _ := ua.Float64()
+				fub, _ := ub.Float64()
+				fra, _ := ra.Float64()
+				frb, _ := rb.Float64()
+				cond := fra*fua + frb*fub
+				du := fub - fua
+				for j, c := range []struct {
+					what  string
+					got   float64
+					want  *big.Float
+					scale float64
+				}{
+					{"log P", m.lp, lp, 4e-16 * (math.Abs(m.lp) + cond) / math.Abs(m.lp)},
+					{"f(a)/P", m.ra, ra, 4e-16 * (2 + cond) * (1 + du)},
+					{"f(b)/P", m.rb, rb, 4e-16 * (2 + cond) * (1 + du)},
+				} {
+					e := relErr(c.got, c.want)
+					if e/c.scale > worst[j] {
+						worst[j], worstAt[j] = e/c.scale, fmt.Sprintf("(%g, %g)", a, b)
+					}
+					if !(e <= c.scale) {
+						w, _ := c.want.Float64()
+						t.Errorf("cloglog %s between(%.17g, %.17g): %.17g, math/big %.17g (%.3g of the tolerance)", c.what, a, b, c.got, w, e/c.scale)
+					}
+				}
+			}
+		}
+	}
+	t.Logf("cloglog middles against math/big (%d pairs): largest errors, in units of their tolerances: log P %.3g at %s, f(a)/P %.3g at %s, f(b)/P %.3g at %s", n, worst[0], worstAt[0], worst[1], worstAt[1], worst[2], worstAt[2])
 }
