@@ -176,6 +176,9 @@ func probitFar(k int, u float64, value bool) (v, lam float64) {
 // scale; above 0 log F is about -(1 - F) = -1/(pi z), and the terms
 // relative to it fall as (u/z)^k. lam's second derivative, the tail's
 // curvature, is the derivative of lam's polynomial (no cancellation).
+// normtail_test.go (TestCauchyTableULP) measures log F, lam and lam'
+// against math/big (within 2.9, 3.2 and 4.4 ulp when written, lam' in
+// ulps of the larger of its terms f'/F and lam^2).
 
 const (
 	cauchyFast = 8.0

@@ -146,3 +146,125 @@ func TestProbitTableULP(t *testing.T) {
 		t.Errorf("probit table: log Phi %.2f ulp at %g, phi/Phi %.2f ulp at %g (limit 5)", worstV, atV, worstL, atL)
 	}
 }
+
+// The cauchy table's values against math/big: F(z) = 1/2 + atan(z)/pi
+// at 400 bits, atan by its series after halving the argument
+// (atan x = 2 atan(x / (1 + sqrt(1 + x^2))), four times, and atan x =
+// pi/2 - atan(1/x) beyond 1), pi by Machin's formula (bigPi), log F by
+// bigLog.
+
+// bigAtan is atan(x) at normPrec bits.
+func bigAtan(x float64, pi *big.Float) *big.Float {
+	if x < 0 {
+		return new(big.Float).Neg(bigAtan(-x, pi))
+	}
+	if x > 1 {
+		// atan x = pi/2 - atan(1/x), 1/x at normPrec bits
+		inv := new(big.Float).SetPrec(normPrec).Quo(bigN(1), bigN(x))
+		r := new(big.Float).SetPrec(normPrec).Quo(pi, bigN(2))
+		return r.Sub(r, bigAtanBig(inv))
+	}
+	return bigAtanBig(bigN(x))
+}
+
+// bigAtanBig is atan(x) for 0 <= x <= 1: x halved four times (then at
+// most tan(pi/64), 0.05), the series x - x^3/3 + x^5/5 - ..., doubled
+// back.
+func bigAtanBig(x *big.Float) *big.Float {
+	y := new(big.Float).SetPrec(normPrec).Set(x)
+	for i := 0; i < 4; i++ {
+		s := new(big.Float).SetPrec(normPrec).Mul(y, y)
+		s.Add(s, bigN(1))
+		s.Sqrt(s)
+		s.Add(s, bigN(1))
+		y.Quo(y, s)
+	}
+	y2 := new(big.Float).SetPrec(normPrec).Mul(y, y)
+	sum := new(big.Float).SetPrec(normPrec).Set(y)
+	pw := new(big.Float).SetPrec(normPrec).Set(y)
+	for k := int64(3); y.Sign() != 0; k += 2 {
+		pw.Mul(pw, y2)
+		t := new(big.Float).SetPrec(normPrec).Quo(pw, bigN(float64(k)))
+		if (k/2)%2 == 1 {
+			sum.Sub(sum, t)
+		} else {
+			sum.Add(sum, t)
+		}
+		if t.MantExp(nil) < sum.MantExp(nil)-normPrec-10 {
+			break
+		}
+	}
+	return sum.SetMantExp(sum, 4) // times 2^4
+}
+
+// bigCauchyTail returns log F(z), lam = f(z)/F(z) and lam' = f'/F - lam^2
+// at normPrec bits under the cauchy link.
+func bigCauchyTail(z float64, pi *big.Float) (logF, lam, dlam *big.Float) {
+	F := new(big.Float).SetPrec(normPrec).Quo(bigAtan(z, pi), pi)
+	F.Add(F, new(big.Float).SetPrec(normPrec).Quo(bigN(1), bigN(2)))
+	q := new(big.Float).SetPrec(normPrec).Mul(bigN(z), bigN(z))
+	q.Add(q, bigN(1)) // 1 + z^2
+	f := new(big.Float).SetPrec(normPrec).Mul(pi, q)
+	f.Quo(bigN(1), f)
+	lam = new(big.Float).SetPrec(normPrec).Quo(f, F)
+	// f' = -2 z f / (1 + z^2)
+	fp := new(big.Float).SetPrec(normPrec).Mul(f, bigN(-2*z))
+	fp.Quo(fp, q)
+	dlam = new(big.Float).SetPrec(normPrec).Quo(fp, F)
+	dlam.Sub(dlam, new(big.Float).SetPrec(normPrec).Mul(lam, lam))
+	return bigLog(F, normPrec), lam, dlam
+}
+
+// TestCauchyTableULP measures cauchyNear's log F, f/F and its derivative
+// against math/big (bigCauchyTail) over [-8, 8]: 2001 points and the
+// ends of the intervals between centres near 0 and +-8. The largest
+// errors, in ulps of the exact values (the derivative, f'/F - lam^2, in
+// ulps of the larger of its two terms: it changes sign), are logged; the
+// test fails above 5 ulp.
+func TestCauchyTableULP(t *testing.T) {
+	pi := bigPi()
+	if v, _ := bigAtan(1, pi).Float64(); v != math.Pi/4 {
+		t.Fatalf("atan(1) = %v", v)
+	}
+	if v, _ := bigAtan(-3, pi).Float64(); v != math.Atan(-3) {
+		t.Fatalf("atan(-3) = %v, package math %v", v, math.Atan(-3))
+	}
+	var zs []float64
+	for i := -1000; i <= 1000; i++ {
+		zs = append(zs, float64(i)*cauchyFast/1000)
+	}
+	for _, c := range []float64{0, 1, -1, 8, -8} {
+		for _, d := range []float64{-1.0 / 64, 1.0 / 64} {
+			if z := c + d; math.Abs(z) <= cauchyFast {
+				zs = append(zs, z, math.Nextafter(z, c))
+			}
+		}
+	}
+	var worst [3]float64
+	var at [3]float64
+	for _, z := range zs {
+		v, lam, dlam := cauchyNear(z, 2)
+		rv, rl, rd := bigCauchyTail(z, pi)
+		// the derivative's scale: the larger of |f'/F| and lam^2
+		rl2 := new(big.Float).SetPrec(normPrec).Mul(rl, rl)
+		scale := new(big.Float).SetPrec(normPrec).Add(rd, rl2)
+		scale.Abs(scale)
+		if scale.Cmp(rl2) < 0 {
+			scale = rl2
+		}
+		// |dlam - rd| in ulps of scale (as ulpErr counts them)
+		de := new(big.Float).SetPrec(normPrec).Sub(bigN(dlam), rd)
+		de.Abs(de)
+		de.SetMantExp(de, 53-scale.MantExp(nil))
+		ed, _ := de.Float64()
+		for i, e := range []float64{ulpErr(v, rv), ulpErr(lam, rl), ed} {
+			if e > worst[i] {
+				worst[i], at[i] = e, z
+			}
+		}
+	}
+	t.Logf("cauchy table against math/big: log F within %.2f ulp (at %g), f/F within %.2f ulp (at %g), its derivative within %.2f ulp of its larger term (at %g)", worst[0], at[0], worst[1], at[1], worst[2], at[2])
+	if worst[0] > 5 || worst[1] > 5 || worst[2] > 5 {
+		t.Errorf("cauchy table: log F %.2f ulp at %g, f/F %.2f ulp at %g, derivative %.2f ulp at %g (limit 5)", worst[0], at[0], worst[1], at[1], worst[2], at[2])
+	}
+}
