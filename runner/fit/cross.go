@@ -25,7 +25,13 @@ const crossPanel = 512
 // summed). symCross (cross_amd64.go, cross_other.go) runs it, or the
 // assembly kernel where the build and the processor have one.
 func symCrossGo(dst []float64, ldd int, u []float64, k, n int, w []float64) {
-	col := func(j, lo, hi int) []float64 { return u[j*n+lo : j*n+hi] }
+	symCrossGoAt(dst, ldd, u, n, k, n, w)
+}
+
+// symCrossGoAt is symCrossGo of columns ldu apart: column j is
+// u[j*ldu:j*ldu+n].
+func symCrossGoAt(dst []float64, ldd int, u []float64, ldu, k, n int, w []float64) {
+	col := func(j, lo, hi int) []float64 { return u[j*ldu+lo : j*ldu+hi] }
 	for lo := 0; lo < n; lo += crossPanel {
 		hi := min(lo+crossPanel, n)
 		var wp []float64
@@ -75,8 +81,14 @@ func symCrossGo(dst []float64, ldd int, u []float64, k, n int, w []float64) {
 // of the kb columns of B (both column-major with n rows). A nil w weighs
 // every row 1. fullCross runs it, or the assembly kernel.
 func fullCrossGo(dst []float64, ldd int, A []float64, ka int, B []float64, kb, n int, w []float64) {
-	colA := func(j, lo, hi int) []float64 { return A[j*n+lo : j*n+hi] }
-	colB := func(j, lo, hi int) []float64 { return B[j*n+lo : j*n+hi] }
+	fullCrossGoAt(dst, ldd, A, n, ka, B, n, kb, n, w)
+}
+
+// fullCrossGoAt is fullCrossGo of columns lda apart in A and ldb apart in
+// B: column j of A is A[j*lda:j*lda+n].
+func fullCrossGoAt(dst []float64, ldd int, A []float64, lda, ka int, B []float64, ldb, kb, n int, w []float64) {
+	colA := func(j, lo, hi int) []float64 { return A[j*lda+lo : j*lda+hi] }
+	colB := func(j, lo, hi int) []float64 { return B[j*ldb+lo : j*ldb+hi] }
 	for lo := 0; lo < n; lo += crossPanel {
 		hi := min(lo+crossPanel, n)
 		var wp []float64

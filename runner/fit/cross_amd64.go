@@ -43,11 +43,17 @@ func crossKernelAVX2(s *[32]float64, w, a *float64, lda, na int, b *float64, o1,
 // summed). The assembly kernel where the processor has AVX2, else
 // symCrossGo: the same bits.
 func symCross(dst []float64, ldd int, u []float64, k, n int, w []float64) {
+	symCrossAt(dst, ldd, u, n, k, n, w)
+}
+
+// symCrossAt is symCross of columns ldu apart: column j of the n rows is
+// u[j*ldu:j*ldu+n] (the columns of a design read in place).
+func symCrossAt(dst []float64, ldd int, u []float64, ldu, k, n int, w []float64) {
 	if !crossAsm {
-		symCrossGo(dst, ldd, u, k, n, w)
+		symCrossGoAt(dst, ldd, u, ldu, k, n, w)
 		return
 	}
-	crossAsmTiles(dst, ldd, u, k, u, k, n, w, true)
+	crossAsmTiles(dst, ldd, u, ldu, k, u, ldu, k, n, w, true)
 }
 
 // fullCross adds to dst (ka x kb, row stride ldd) the sums over the n rows
@@ -56,18 +62,24 @@ func symCross(dst []float64, ldd int, u []float64, k, n int, w []float64) {
 // row 1. The assembly kernel where the processor has AVX2, else
 // fullCrossGo: the same bits.
 func fullCross(dst []float64, ldd int, A []float64, ka int, B []float64, kb, n int, w []float64) {
+	fullCrossAt(dst, ldd, A, n, ka, B, n, kb, n, w)
+}
+
+// fullCrossAt is fullCross of columns lda apart in A and ldb apart in B:
+// column j of A is A[j*lda:j*lda+n].
+func fullCrossAt(dst []float64, ldd int, A []float64, lda, ka int, B []float64, ldb, kb, n int, w []float64) {
 	if !crossAsm {
-		fullCrossGo(dst, ldd, A, ka, B, kb, n, w)
+		fullCrossGoAt(dst, ldd, A, lda, ka, B, ldb, kb, n, w)
 		return
 	}
-	crossAsmTiles(dst, ldd, A, ka, B, kb, n, w, false)
+	crossAsmTiles(dst, ldd, A, lda, ka, B, ldb, kb, n, w, false)
 }
 
 // crossAsmTiles adds to dst the sums of fullCross (lower: only those on or
 // below the diagonal, B being A, as symCross) by the assembly kernel, panel
 // after panel of rows, in tiles of 4 columns of A by 8 of B (fewer at the
 // ends).
-func crossAsmTiles(dst []float64, ldd int, A []float64, ka int, B []float64, kb, n int, w []float64, lower bool) {
+func crossAsmTiles(dst []float64, ldd int, A []float64, lda, ka int, B []float64, ldb, kb, n int, w []float64, lower bool) {
 	var s [32]float64
 	for lo := 0; lo < n; lo += crossAsmPanel {
 		hi := min(lo+crossAsmPanel, n)
@@ -81,7 +93,7 @@ func crossAsmTiles(dst []float64, ldd int, A []float64, ka int, B []float64, kb,
 				nb := crossTileWidth(end - b)
 				t := crossTile{a: a, na: na, b: b, nb: nb, lower: lower}
 				t.load(&s, dst, ldd)
-				crossTileRows(&s, w, A, a, na, B, b, nb, n, lo, hi)
+				crossTileRows(&s, w, A, lda, a, na, B, ldb, b, nb, lo, hi)
 				t.store(&s, dst, ldd)
 				b += nb
 			}
@@ -126,17 +138,17 @@ func (t crossTile) store(s *[32]float64, dst []float64, ldd int) {
 }
 
 // crossTileRows adds to s[8r+c] (r < na, c < nb) the sums over rows lo to
-// hi of A[(a+r)*n+i] (w_i B[(b+c)*n+i]) (w nil: 1): the rows in groups of
-// four by the kernel, the last hi-lo mod 4 rows here, in order. nb is 1 to
-// 4, or 8; with fewer than 4 the kernel reads column b in place of the
+// hi of A[(a+r)*lda+i] (w_i B[(b+c)*ldb+i]) (w nil: 1): the rows in groups
+// of four by the kernel, the last hi-lo mod 4 rows here, in order. nb is 1
+// to 4, or 8; with fewer than 4 the kernel reads column b in place of the
 // missing ones, and their sums are not used.
-func crossTileRows(s *[32]float64, w, A []float64, a, na int, B []float64, b, nb, n, lo, hi int) {
+func crossTileRows(s *[32]float64, w, A []float64, lda, a, na int, B []float64, ldb, b, nb, lo, hi int) {
 	quads := (hi - lo) / 4
 	if quads > 0 {
 		// The kernel reads within A's columns a to a+na-1 and B's
 		// columns b to b+nb-1, rows lo to hi: check their ends here.
-		_ = A[(a+na-1)*n+hi-1]
-		_ = B[(b+nb-1)*n+hi-1]
+		_ = A[(a+na-1)*lda+hi-1]
+		_ = B[(b+nb-1)*ldb+hi-1]
 		var wp *float64
 		if w != nil {
 			_ = w[hi-1]
@@ -144,15 +156,15 @@ func crossTileRows(s *[32]float64, w, A []float64, a, na int, B []float64, b, nb
 		}
 		var o [4]int
 		for c := 1; c < min(nb, 4); c++ {
-			o[c] = c * n
+			o[c] = c * ldb
 		}
-		crossKernelAVX2(s, wp, &A[a*n+lo], n, na, &B[b*n+lo], o[1], o[2], o[3], 4*n, max(nb, 4), quads)
+		crossKernelAVX2(s, wp, &A[a*lda+lo], lda, na, &B[b*ldb+lo], o[1], o[2], o[3], 4*ldb, max(nb, 4), quads)
 	}
 	for i := lo + 4*quads; i < hi; i++ {
 		for r := 0; r < na; r++ {
-			x := A[(a+r)*n+i]
+			x := A[(a+r)*lda+i]
 			for c := 0; c < nb; c++ {
-				y := B[(b+c)*n+i]
+				y := B[(b+c)*ldb+i]
 				if w != nil {
 					y = w[i] * y
 				}

@@ -150,3 +150,57 @@ func BenchmarkCrossShapesGo(b *testing.B) {
 	crossAsm = false
 	benchCrossShapes(b)
 }
+
+// TestCrossAtStride checks the cross-products of columns read in place
+// (symCrossAt, fullCrossAt: columns further apart than the rows, as in a
+// design's column-major copy) against the same columns copied side by
+// side, with the assembly kernel and with the Go tiles, to the last bit.
+func TestCrossAtStride(t *testing.T) {
+	crossAsmOnly(t)
+	if fusedMultiplyAdd() {
+		t.Skip("this build fuses multiply-adds in Go: the Go tiles round otherwise than the kernel")
+	}
+	rng := rand.New(rand.NewPCG(23, 5))
+	// spread puts the k columns of u (n rows) ld apart, NaN between them.
+	spread := func(u []float64, k, n, ld int) []float64 {
+		out := make([]float64, (k-1)*ld+n)
+		for i := range out {
+			out[i] = math.NaN()
+		}
+		for j := 0; j < k; j++ {
+			copy(out[j*ld:j*ld+n], u[j*n:(j+1)*n])
+		}
+		return out
+	}
+	for _, n := range []int{1, 5, 512, 1030, 4096} {
+		for _, ka := range []int{1, 3, 8, 10, 13} {
+			kb := []int{1, 4, 9, 33}[rng.IntN(4)]
+			A, B := crossValues(rng, ka, n, 1), crossValues(rng, kb, n, 1)
+			w := crossValues(rng, 1, n, 0)
+			lda, ldb := n+1+rng.IntN(9000), n+rng.IntN(300)
+			As, Bs := spread(A, ka, n, lda), spread(B, kb, n, ldb)
+			for _, wv := range [][]float64{nil, w} {
+				wantS, wantF := make([]float64, ka*ka), make([]float64, ka*kb)
+				symCross(wantS, ka, A, ka, n, wv)
+				fullCross(wantF, kb, A, ka, B, kb, n, wv)
+				for _, asm := range []bool{true, false} {
+					crossAsm = asm
+					gotS, gotF := make([]float64, ka*ka), make([]float64, ka*kb)
+					symCrossAt(gotS, ka, As, lda, ka, n, wv)
+					fullCrossAt(gotF, kb, As, lda, ka, Bs, ldb, kb, n, wv)
+					crossAsm = true
+					for i := range wantS {
+						if !sameBits(wantS[i], gotS[i]) {
+							t.Fatalf("symCrossAt n=%d k=%d asm=%v: entry %d %v, side by side %v", n, ka, asm, i, gotS[i], wantS[i])
+						}
+					}
+					for i := range wantF {
+						if !sameBits(wantF[i], gotF[i]) {
+							t.Fatalf("fullCrossAt n=%d %dx%d asm=%v: entry %d %v, side by side %v", n, ka, kb, asm, i, gotF[i], wantF[i])
+						}
+					}
+				}
+			}
+		}
+	}
+}

@@ -16,3 +16,14 @@ func symCross(dst []float64, ldd int, u []float64, k, n int, w []float64) {
 func fullCross(dst []float64, ldd int, A []float64, ka int, B []float64, kb, n int, w []float64) {
 	fullCrossGo(dst, ldd, A, ka, B, kb, n, w)
 }
+
+// symCrossAt is symCross of columns ldu apart: symCrossGoAt.
+func symCrossAt(dst []float64, ldd int, u []float64, ldu, k, n int, w []float64) {
+	symCrossGoAt(dst, ldd, u, ldu, k, n, w)
+}
+
+// fullCrossAt is fullCross of columns lda apart in A and ldb apart in B:
+// fullCrossGoAt.
+func fullCrossAt(dst []float64, ldd int, A []float64, lda, ka int, B []float64, ldb, kb, n int, w []float64) {
+	fullCrossGoAt(dst, ldd, A, lda, ka, B, ldb, kb, n, w)
+}

@@ -39,6 +39,44 @@ type design struct {
 	// (Data.ind): column K-groups+g-1 is 1 where group is g.
 	group  []int
 	groups int
+	// cols, when not nil, holds x column-major as well (withColumns):
+	// predictor k of rows lo..hi-1 is cols[k*n+lo:k*n+hi], so that a pass
+	// over the data copies a block's columns, or reads them in place,
+	// rather than transposing its rows.
+	cols []float64
+}
+
+// withColumns is d with x's columns held column-major too (design.cols):
+// the design the fits of a grid share (shared.design, shared.columns).
+// The copy is made once, for the many passes of the fits over the rows.
+func (d *design) withColumns() *design {
+	c := *d
+	w := d.width()
+	c.cols = make([]float64, d.n*w)
+	// In runs of rows whose values stay in the cache across the columns.
+	const run = 512
+	for lo := 0; lo < d.n; lo += run {
+		hi := min(lo+run, d.n)
+		for k := 0; k < w; k++ {
+			dst := c.cols[k*d.n+lo : k*d.n+hi]
+			for i := range dst {
+				dst[i] = d.x[(lo+i)*w+k]
+			}
+		}
+	}
+	return &c
+}
+
+// heldColumns reports whether the predictors ks are all held column-major
+// (cols; an indicator never is).
+func (d *design) heldColumns(ks []int) bool {
+	return d.cols != nil && !slices.ContainsFunc(ks, func(k int) bool { return k >= d.width() })
+}
+
+// column is predictor k's values in rows lo..lo+rows-1, read in place from
+// cols.
+func (d *design) column(k, lo, rows int) []float64 {
+	return d.cols[k*d.n+lo : k*d.n+lo+rows]
 }
 
 // width is the number of columns x holds per row.
@@ -325,6 +363,11 @@ func forEach(count, workers int, f func(i int)) {
 // phase reads and writes contiguous memory.
 type scratch struct {
 	uf, xp []float64 // Kf x rows, Kp x rows
+	// xpv holds the parallel columns the cross-products read, xpStride
+	// apart: xp (rows apart), or the design's own columns read in place
+	// (design.cols, n apart; parallelInPlace).
+	xpv      []float64
+	xpStride int
 	// eta holds x'b + offset per equation, q x rows; when no equation has
 	// slopes of its own (parallel effects) the equations share one column,
 	// etaStride 0 (else rows): equation m of row i is eta[m*etaStride+i].
@@ -336,9 +379,11 @@ type scratch struct {
 	rl, ru    []float64 // q x rows: sum_m H_ml per equation l; Kf q x rows: those times the per-equation columns
 	L, g, h   []float64
 	p         []float64
-	sums      []float64 // pairs: the constant's information pieces of a block (pairSums)
-	kt        []float64 // the logit kernels' per-row values between their sweeps (kernelTemp)
-	ki        []int     // the logit kernels' lists of rows (kernelTemp)
+	sums      []float64   // pairs: the constant's information pieces of a block (pairSums)
+	kt        []float64   // the logit kernels' per-row values between their sweeps (kernelTemp)
+	ki        []int       // the logit kernels' lists of rows (kernelTemp)
+	src       [][]float64 // the columns of one linear combination (combine)
+	bs        []float64   // their coefficients
 }
 
 func (p *problem) newScratch() *scratch {
@@ -399,11 +444,13 @@ func (p *problem) block(c *coefs, lo, hi, order int, expected bool, a *acc, s *s
 // blockColumns fills s.uf with the per-equation columns (Kf x rows; the
 // constant only when it is not the only one, since alone its sums are the
 // weights' column sums) and s.xp with the parallel columns (Kp x rows) of
-// the block; the predictors of x are copied in one sweep over the rows
-// (gatherRows). The parallel columns are left to blockLinear when it reads
-// them from the rows (parFromRows).
+// the block; the predictors of x are copied from the design's columns
+// (design.cols), or else in one sweep over the rows (gatherRows). The
+// parallel columns are left to blockLinear when it reads them from the
+// rows or the design's columns (parFromRows).
 func (p *problem) blockColumns(c *coefs, lo, rows int, s *scratch) {
 	d := p.d
+	s.xpv, s.xpStride = s.xp, rows
 	w := d.width()
 	x := d.x[lo*w : (lo+rows)*w]
 	var at, from []int // the predictors of x among the columns: where they go, where they are
@@ -419,12 +466,23 @@ func (p *problem) blockColumns(c *coefs, lo, rows int, s *scratch) {
 				}
 			}
 		case predictorColumn:
-			if col.index < w {
+			if col.index < w && d.cols == nil {
 				at, from = append(at, j), append(from, col.index)
 			} else {
 				p.column(dst, x, lo, col.index)
 			}
 		default:
+			if ks := p.ly.groups[col.index]; d.heldColumns(ks) {
+				// z = x'g summed in the order of the group, as value does
+				// (x_k g_k and g_k x_k are the same product).
+				src := s.src[:0]
+				for _, k := range ks {
+					src = append(src, d.column(k, lo, rows))
+				}
+				s.src = src
+				combine(dst, c.gam[col.index], src)
+				continue
+			}
 			buf := make([]float64, d.K)
 			for i := range dst {
 				dst[i] = col.value(d.row(lo+i, buf), p.ly.groups, c.gam)
@@ -534,6 +592,10 @@ func (p *problem) column(dst, x []float64, lo, k int) {
 		}
 		return
 	}
+	if d.cols != nil {
+		copy(dst, d.column(k, lo, len(dst)))
+		return
+	}
 	for i := range dst {
 		dst[i] = x[i*w+k]
 	}
@@ -553,11 +615,29 @@ func (p *problem) parFromRows() bool {
 	return true
 }
 
+// parallelInPlace reports whether the cross-products read the parallel
+// columns of the blocks in place from the design (design.cols): they are
+// predictors (parFromRows) side by side there, in the order of the
+// parallel columns.
+func (p *problem) parallelInPlace() bool {
+	kp0 := len(p.parCols) - p.parInd
+	if p.d.cols == nil || kp0 == 0 || !p.parFromRows() {
+		return false
+	}
+	for j, k := range p.parCols[:kp0] {
+		if k != p.parCols[0]+j {
+			return false
+		}
+	}
+	return true
+}
+
 // blockLinear fills s.eta with Uf Bf + (Xp bp + offset) 1', each sum in the
 // order of its terms; when no equation has slopes of its own, the
 // equations share one column (s.etaStride 0). held asks for the parallel
-// columns in s.xp (the score's and the information's cross-products);
-// without it, those read from the rows (parFromRows) are not copied.
+// columns in s.xpv (the score's and the information's cross-products: s.xp,
+// or the design's columns in place, parallelInPlace); without it, those
+// read from the rows or the design's columns (parFromRows) are not copied.
 func (p *problem) blockLinear(c *coefs, lo, rows int, held bool, s *scratch) {
 	q := p.q
 	// The shared sum goes straight to eta when it is all there is.
@@ -573,9 +653,29 @@ func (p *problem) blockLinear(c *coefs, lo, rows int, held bool, s *scratch) {
 		d := p.d
 		w := d.width()
 		x := d.x[lo*w : (lo+rows)*w]
-		if held {
+		switch {
+		case d.cols != nil:
+			// Column by column, read in place; when held and not side by
+			// side in the design, copied to the block's columns.
+			copied := held && !p.parallelInPlace()
+			src := s.src[:0]
+			for j, k := range p.parCols[:kp0] {
+				col := d.column(k, lo, rows)
+				if copied {
+					col = s.xp[j*rows : (j+1)*rows]
+					copy(col, d.column(k, lo, rows))
+				}
+				src = append(src, col)
+			}
+			s.src = src
+			combine(e, c.bp[:kp0], src)
+			if held && !copied {
+				k0 := p.parCols[0]
+				s.xpv, s.xpStride = d.cols[k0*d.n+lo:(k0+kp0-1)*d.n+lo+rows], d.n
+			}
+		case held:
 			gatherRows(s.xp, p.parAt, x, w, rows, p.parCols[:kp0], c.bp[:kp0], e)
-		} else {
+		default:
 			gatherRows(nil, nil, x, w, rows, p.parCols[:kp0], c.bp[:kp0], e)
 		}
 	} else {
@@ -603,13 +703,34 @@ func (p *problem) blockLinear(c *coefs, lo, rows int, held bool, s *scratch) {
 	s.etaStride = rows
 	for m := 0; m < q; m++ {
 		em := s.eta[m*rows : (m+1)*rows]
-		clear(em)
+		src, bs := s.src[:0], s.bs[:0]
 		for a := range p.freeCols {
 			if b := c.bf[a*q+m]; b != 0 {
-				axpy(em, b, s.uf[a*rows:(a+1)*rows])
+				src, bs = append(src, s.uf[a*rows:(a+1)*rows]), append(bs, b)
 			}
 		}
+		s.src, s.bs = src, bs
+		combine(em, bs, src)
 		addTo(em, e)
+	}
+}
+
+// combine sets y to the sum over j of b[j] x[j] (each x[j] at least as
+// long as y), each y_i the terms added to 0 in the order of j, as axpy
+// column after column would: the same bits, with y read and written once
+// for four columns.
+func combine(y, b []float64, x [][]float64) {
+	clear(y)
+	j := 0
+	for ; j+4 <= len(x); j += 4 {
+		axpy4(y, b[j], b[j+1], b[j+2], b[j+3], x[j], x[j+1], x[j+2], x[j+3])
+	}
+	if j+2 <= len(x) {
+		axpy2(y, b[j], b[j+1], x[j], x[j+1])
+		j += 2
+	}
+	if j < len(x) {
+		axpy(y, b[j], x[j])
 	}
 }
 
@@ -618,6 +739,22 @@ func axpy(y []float64, b float64, x []float64) {
 	x = x[:len(y)]
 	for i := range y {
 		y[i] += b * x[i]
+	}
+}
+
+// axpy2 adds b0 x0, then b1 x1, to y.
+func axpy2(y []float64, b0, b1 float64, x0, x1 []float64) {
+	x0, x1 = x0[:len(y)], x1[:len(y)]
+	for i, v := range y {
+		y[i] = v + b0*x0[i] + b1*x1[i]
+	}
+}
+
+// axpy4 adds b0 x0, b1 x1, b2 x2, then b3 x3, to y.
+func axpy4(y []float64, b0, b1, b2, b3 float64, x0, x1, x2, x3 []float64) {
+	x0, x1, x2, x3 = x0[:len(y)], x1[:len(y)], x2[:len(y)], x3[:len(y)]
+	for i, v := range y {
+		y[i] = v + b0*x0[i] + b1*x1[i] + b2*x2[i] + b3*x3[i]
 	}
 }
 
@@ -842,7 +979,7 @@ func (p *problem) blockScore(lo, rows int, a *acc, s *scratch) {
 	}
 	sg := p.equationSums(rows, s)
 	kp0 := kp - p.parInd
-	fullCross(a.Vp, kp, sg, 1, s.xp, kp0, rows, nil)
+	fullCrossAt(a.Vp, kp, sg, rows, 1, s.xpv, s.xpStride, kp0, rows, nil)
 	if p.parInd > 0 {
 		p.indicatorScore(lo, rows, kp0, sg, a)
 	}
@@ -891,8 +1028,8 @@ func (p *problem) blockInformation(lo, rows int, a *acc, s *scratch) {
 	}
 	wt, ru := p.rowWeights(rows, s)
 	kp0 := kp - p.parInd
-	fullCross(a.R, q*kf, s.xp, kp0, ru, q*kf, rows, nil)
-	symCross(a.T, kp, s.xp, kp0, rows, wt)
+	fullCrossAt(a.R, q*kf, s.xpv, s.xpStride, kp0, ru, rows, q*kf, rows, nil)
+	symCrossAt(a.T, kp, s.xpv, s.xpStride, kp0, rows, wt)
 	if p.parInd > 0 {
 		p.indicatorInformation(lo, rows, kp0, ru, a, s)
 	}

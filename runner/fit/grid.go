@@ -30,6 +30,11 @@ type shared struct {
 	sd, m3  []float64 // spread
 	mu      sync.Mutex
 	fitted  map[string]gridFit // by modelKey, options of the auxiliary fits
+	// columns: the design and its subsample hold their columns
+	// column-major too (design.withColumns), a copy the size of X that
+	// pays over the many passes of a grid's fits (FitGrid); a single fit
+	// keeps its memory to X and transposes the rows of each block.
+	columns bool
 }
 
 // gridFit is a finished fit as a later fit may read it.
@@ -80,17 +85,32 @@ func (sh *shared) fitOuter(d, cd *Data, c *centring, m Model, opt Options, keep 
 	return res, err
 }
 
-// design is d's compressed design, made once.
+// design is d's compressed design, made once; in a grid (sh.columns) with
+// its columns held column-major (withColumns), but for rows centred (a
+// copy of X already: centring.data), not copied again so that the memory
+// stays within three times X.
 func (sh *shared) design(d *Data) *design {
-	sh.desOnce.Do(func() { sh.des = d.design().compressed() })
+	sh.desOnce.Do(func() {
+		des := d.design()
+		c := des.compressed()
+		if sh.columns && (c != des || d.uncentred == nil) {
+			c = c.withColumns()
+		}
+		sh.des = c
+	})
 	return sh.des
 }
 
 // subsample is the fixed subsample of d's compressed design (nil on
-// fewer rows than the options' SubsampleAbove), made once: the fits of a
-// grid share one Options.
+// fewer rows than the options' SubsampleAbove), in a grid with its columns
+// held column-major, made once: the fits of a grid share one Options.
 func (sh *shared) subsample(d *Data, o Options) *design {
-	sh.subOnce.Do(func() { sh.sub = sh.design(d).subsample(d.J, o.subsampleAbove()) })
+	sh.subOnce.Do(func() {
+		sh.sub = sh.design(d).subsample(d.J, o.subsampleAbove())
+		if sh.sub != nil && sh.columns {
+			sh.sub = sh.sub.withColumns()
+		}
+	})
 	return sh.sub
 }
 
@@ -170,7 +190,7 @@ func FitGrid(d *Data, models []Model, opt Options, workers int, done func(i int,
 		}
 		return
 	}
-	sh := &shared{fitted: map[string]gridFit{}}
+	sh := &shared{fitted: map[string]gridFit{}, columns: true}
 	cd, c := sh.centred(d, opt.Workers)
 	deps := gridDeps(d, models, opt)
 	order := gridOrder(d, models, deps)

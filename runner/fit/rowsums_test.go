@@ -54,8 +54,8 @@ func TestRowSumsSameAsCrossProducts(t *testing.T) {
 				p.shape = densePairs
 				wt, rl := p.rowWeights(rows, s)
 				p.shape = shape
-				fullCross(want.R, q, s.xp, kp, rl, q, rows, nil)
-				symCross(want.T, kp, s.xp, kp, rows, wt)
+				fullCrossAt(want.R, q, s.xpv, s.xpStride, kp, rl, rows, q, rows, nil)
+				symCrossAt(want.T, kp, s.xpv, s.xpStride, kp, rows, wt)
 				same := func(what string, a, b []float64) {
 					for i := range a {
 						if math.Float64bits(a[i]) != math.Float64bits(b[i]) {
