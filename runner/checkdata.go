@@ -26,16 +26,16 @@ func CheckData(p *plan.Plan) ([]string, error) {
 	var scopes []plan.ParameterScope
 	var warnings []string
 	for i, r := range a.Outcomes {
-		ld, unlinked, err := a.checkLoad(r)
+		ld, run, unlinked, err := a.checkLoad(r)
 		if err != nil {
 			return nil, err
 		}
 		warnings = append(warnings, unlinkedWarnings(r.Outcome, unlinked)...)
-		if err := a.checkDesignAsRun(r, ld); err != nil {
+		if err := a.checkDesignAsRun(r, ld, run); err != nil {
 			return nil, err
 		}
 		warnings = append(warnings, pointWarnings(r.Outcome, ld.Data)...)
-		used, err := a.rowsFitted(r, ld.Data)
+		used, err := a.rowsFitted(r, ld.Data, run)
 		if err != nil {
 			return nil, err
 		}
@@ -105,69 +105,63 @@ func CheckData(p *plan.Plan) ([]string, error) {
 
 // checkDesignAsRun checks outcome r's design before any fit as run does
 // (CheckDesign on ld, checkLoad's data): with imputed sets made elsewhere
-// (data.imputed) on the sets, as run fits them (checkImputedDesign), not
-// on the data file's complete rows, which run fits nowhere.
-func (a *Analysis) checkDesignAsRun(r Reading, ld *Loaded) error {
+// (data.imputed; run, checkLoad's) on the sets, as run fits them
+// (checkImputedDesign), not on the data file's complete rows, which run
+// fits nowhere.
+func (a *Analysis) checkDesignAsRun(r Reading, ld *Loaded, run *ImputedRun) error {
 	if a.Imputed == nil {
 		return a.CheckDesign(r, ld.Design, ld.Data, ld.FitData)
 	}
-	run, sets, dz, err := imputedSets(a, r)
-	if err != nil {
-		return err
-	}
-	return a.checkImputedDesign(r, dz, sets[0], run.Sets)
+	return a.checkImputedDesign(r, ld.Design, run.Data[0], run.Sets)
 }
 
-// checkLoad reads outcome r's data for check: its complete rows (Load).
-// With data.missing: impute run fits no complete rows but imputed sets:
-// so check imputes the rows kept as run does, into two sets after one
-// iteration (the plan's models and seed; chainedSets), stopping where
+// checkLoad reads outcome r's data for check as run reads them: without
+// imputation its complete rows (Load); on imputed data the imputed sets
+// and what run refuses before any fit (Analysis.imputedOutcome), not the
+// data file's complete rows, which run fits nowhere. With data.imputed
+// the sets are read and matched against the data file as run does; with
+// data.missing: impute check imputes the rows kept as run does, into two
+// sets after one iteration (the plan's models and seed), stopping where
 // run's imputation would (a column missing in every row, I9), and checks
 // the design on the first imputed set, as run makes it: a level seen only
 // in incomplete rows is a level of the rows used, and data in which no
 // row is complete are imputed, not refused (I24). unlinked are the
 // imputation's ChainedRecord.Unlinked, which check warns of as run does
-// (I25).
-func (a *Analysis) checkLoad(r Reading) (ld *Loaded, unlinked []string, err error) {
-	if !a.Imputes() {
+// (I25); run is nil without imputed sets.
+func (a *Analysis) checkLoad(r Reading) (ld *Loaded, run *ImputedRun, unlinked []string, err error) {
+	if !a.Imputes() && a.Imputed == nil {
 		ld, err = a.Load(r)
-		return ld, nil, err
+		return ld, nil, nil, err
 	}
 	quick := *a
-	im := *a.Imputation
-	im.Sets, im.Iterations, im.WriteSets, im.ConvergenceTable = 2, 1, false, false
-	quick.Imputation = &im
-	run, sets, dz, err := chainedSets(&quick, r, Options{})
+	if a.Imputes() {
+		im := *a.Imputation
+		im.Sets, im.Iterations, im.WriteSets, im.ConvergenceTable = 2, 1, false, false
+		quick.Imputation = &im
+	}
+	run, _, dz, ds, err := quick.imputedOutcome(r, Options{})
 	switch {
 	case errors.Is(err, errNothingToImpute):
 		ld, err = a.Load(r)
-		return ld, nil, err
+		return ld, nil, nil, err
 	case err != nil:
-		return nil, nil, err
+		return nil, nil, nil, err
 	}
-	ds := *sets[0]
-	if err := a.Clusters(r, &ds); err != nil {
-		return nil, nil, err
+	if run.Chained != nil {
+		unlinked = run.Chained.Unlinked
 	}
-	if err := a.checkPanels(r, run.observed, dz); err != nil {
-		return nil, nil, err
-	}
-	return &Loaded{Data: &ds, Design: dz, FitData: run.Sets[0]}, run.Chained.Unlinked, nil
+	return &Loaded{Data: ds, Design: dz, FitData: run.Sets[0]}, run, unlinked, nil
 }
 
 // rowsFitted are the rows the fits of outcome r use, as run counts them
 // for its warnings (its first imputed set): on imputed data the rows of
-// an imputed set, with data.missing: impute the rows kept for imputation
-// (frequency weights expanded, as chainedSets does), not the complete
-// rows of the data file (complete, what a.Load read).
-func (a *Analysis) rowsFitted(r Reading, complete *data.Dataset) (*data.Dataset, error) {
+// an imputed set (checkLoad's ld, with run), with data.missing: impute
+// the rows kept for imputation (frequency weights expanded, as
+// chainedSets does), not the complete rows of the data file.
+func (a *Analysis) rowsFitted(r Reading, ld *data.Dataset, run *ImputedRun) (*data.Dataset, error) {
 	switch {
-	case a.Imputed != nil:
-		_, sets, _, err := imputedSets(a, r)
-		if err != nil {
-			return nil, err
-		}
-		return sets[0], nil
+	case a.Imputed != nil && run != nil:
+		return ld, nil
 	case a.Imputes():
 		ds, err := a.loadIncomplete(r)
 		if err != nil {
@@ -180,7 +174,7 @@ func (a *Analysis) rowsFitted(r Reading, complete *data.Dataset) (*data.Dataset,
 		}
 		return ds, nil
 	}
-	return complete, nil
+	return ld, nil
 }
 
 // levelRows are the rows the warning of levels with few rows counts

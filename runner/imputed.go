@@ -139,6 +139,9 @@ func imputedSets(a *Analysis, r Reading) (*ImputedRun, []*data.Dataset, *design.
 		if len(miss) > 0 {
 			return nil, nil, nil, fmt.Errorf("%s: data.imputed: imputed set %d, %s, has rows with %s (%s); every imputed set must be complete in the columns the plan uses", src, k+1, names[k], data.DropReasons(drops, r.Options.Weights), strings.Join(miss, ", "))
 		}
+		if err := a.observedIn(r, ds, fmt.Sprintf(" of imputed set %d, %s", k+1, names[k])); err != nil {
+			return nil, nil, nil, err
+		}
 		if ds.N != sets[0].N {
 			if err := run.membership(nil); err != nil {
 				return nil, nil, nil, err
@@ -748,57 +751,16 @@ func FStatistic(t fit.Test) string {
 // grid is fitted on every imputed set and pooled, the tests are pooled
 // (D3, D1), and the rules run on the pooled fits.
 func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*OutcomeResult, error) {
-	var run *ImputedRun
-	var sets []*data.Dataset
-	var dz *design.Design
-	var err error
-	if an.Imputes() {
-		// The sets keep the original data's missing-value table.
-		run, sets, dz, err = chainedSets(an, r, opt)
-	} else {
-		run, sets, dz, err = imputedSets(an, r)
-	}
+	run, sets, dz, ds, err := an.imputedOutcome(r, opt)
 	if err != nil {
 		return nil, err
 	}
-	if !dz.Trivial() {
-		run.design = dz.Freeze(r.Design)
-	}
-	run.obs = completeObs(run.Sets[0], an.Errors.Sampling)
-	ds := *sets[0]
-	if err := an.Clusters(r, &ds); err != nil {
-		return nil, err
-	}
-	if !an.Imputes() {
-		// The original file: its missing values and observed values are
-		// described in the report.
-		dopt := r.Options
-		dopt.Refuse, dopt.KeepIncomplete = false, true
-		orig, err := data.LoadFiles(an.Paths(), dopt)
-		if err != nil {
-			return nil, fmt.Errorf("%s (plan %s, outcome %q)", err, an.Source, oc.Column)
-		}
-		if err := run.matchObserved(an.Source, orig, an.DataFile, dopt.Cluster, dopt.PredictorLevels); err != nil {
-			return nil, err
-		}
-		ds.Missing, run.observed = orig.Missing, orig
-	}
-	if run.observed != nil && an.DataFile != "" {
-		// The original data as the plan names it (the report names it),
-		// not as the path from where the command runs.
-		o := *run.observed
-		o.File = an.DataFile
-		run.observed = &o
-	}
-	or := &OutcomeResult{Outcome: oc, Data: &ds, Observed: run.observed, FitData: run.Sets[0], Design: dz, Terms: termsOf(dz), dataOptions: r.Options, Imputed: run}
-	if err := an.checkPanels(r, or.AsRead(), dz); err != nil {
-		return nil, err
-	}
+	or := &OutcomeResult{Outcome: oc, Data: ds, Observed: run.observed, FitData: run.Sets[0], Design: dz, Terms: termsOf(dz), dataOptions: r.Options, Imputed: run}
 	or.Notes = append(append(or.Notes, ds.Notes...), dz.Notes...)
-	if w := an.FewClusters(r, &ds); w != "" {
+	if w := an.FewClusters(r, ds); w != "" {
 		or.Notes = append(or.Notes, w)
 	}
-	if w := an.StabilityLevels(r, &ds); w != "" && !opt.NoStability {
+	if w := an.StabilityLevels(r, ds); w != "" && !opt.NoStability {
 		or.Notes = append(or.Notes, w)
 	}
 	if run.Chained != nil {
@@ -828,6 +790,65 @@ func runImputedOutcome(an *Analysis, r Reading, oc plan.Outcome, opt Options) (*
 		or.Notes = append(or.Notes, ImputedClusterNote)
 	}
 	return or, nil
+}
+
+// imputedOutcome reads outcome r's imputed sets as run analyses them,
+// and refuses what run refuses before any fit: the sets imputed by the
+// program (data.missing: impute; chainedSets) or read from data.imputed
+// (imputedSets, checked against the data file's observed values:
+// matchObserved), their design frozen on the first set, the first set's
+// rows with their clusters (ds, Analysis.Clusters), and the numeric
+// column of report.panels_by on the data as read (checkPanels). run and
+// check take it alike, so check judges the rows run fits, not the data
+// file's complete rows.
+func (an *Analysis) imputedOutcome(r Reading, opt Options) (run *ImputedRun, sets []*data.Dataset, dz *design.Design, ds *data.Dataset, err error) {
+	if an.Imputes() {
+		// The sets keep the original data's missing-value table.
+		run, sets, dz, err = chainedSets(an, r, opt)
+	} else {
+		run, sets, dz, err = imputedSets(an, r)
+	}
+	if err != nil {
+		return nil, nil, nil, nil, err
+	}
+	if !dz.Trivial() {
+		run.design = dz.Freeze(r.Design)
+	}
+	run.obs = completeObs(run.Sets[0], an.Errors.Sampling)
+	first := *sets[0]
+	ds = &first
+	if err := an.Clusters(r, ds); err != nil {
+		return nil, nil, nil, nil, err
+	}
+	if !an.Imputes() {
+		// The original file: its missing values and observed values are
+		// described in the report.
+		dopt := r.Options
+		dopt.Refuse, dopt.KeepIncomplete = false, true
+		orig, err := data.LoadFiles(an.Paths(), dopt)
+		if err != nil {
+			return nil, nil, nil, nil, fmt.Errorf("%s (plan %s, outcome %q%s)", err, an.Source, r.Outcome, r.keyOf(err))
+		}
+		if err := run.matchObserved(an.Source, orig, an.DataFile, dopt.Cluster, dopt.PredictorLevels); err != nil {
+			return nil, nil, nil, nil, err
+		}
+		ds.Missing, run.observed = orig.Missing, orig
+	}
+	if run.observed != nil && an.DataFile != "" {
+		// The original data as the plan names it (the report names it),
+		// not as the path from where the command runs.
+		o := *run.observed
+		o.File = an.DataFile
+		run.observed = &o
+	}
+	asRead := ds
+	if run.observed != nil {
+		asRead = run.observed
+	}
+	if err := an.checkPanels(r, asRead, dz); err != nil {
+		return nil, nil, nil, nil, err
+	}
+	return run, sets, dz, ds, nil
 }
 
 // decideImputed is the decision procedure on imputed sets (or.Imputed,

@@ -546,10 +546,16 @@ func (a *Analysis) checkPanels(r Reading, ds *data.Dataset, dz *design.Design) e
 // then said to be never observed among the rows whose outcome is
 // observed, those that miss it counted apart.
 func (a *Analysis) Observed(r Reading, ds *data.Dataset) error {
+	return a.observedIn(r, ds, "")
+}
+
+// observedIn is Observed on rows named by in (" of imputed set 2,
+// imp2.csv": an imputed set of data.imputed; "": the rows used).
+func (a *Analysis) observedIn(r Reading, ds *data.Dataset, in string) error {
 	if len(ds.Unobserved) == 0 {
 		return nil
 	}
-	rows := fmt.Sprintf("the %d rows used", ds.N)
+	rows := fmt.Sprintf("the %d rows used%s", ds.N, in)
 	if miss := ds.N - observedOutcomes(ds); miss > 0 {
 		rows = fmt.Sprintf("the %d rows used whose %s is observed (the other %d of the %d rows used miss it, to be imputed)", ds.N-miss, ds.Outcome, miss, ds.N)
 	}
