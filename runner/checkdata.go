@@ -34,7 +34,15 @@ func CheckData(p *plan.Plan) ([]string, error) {
 		if err := a.checkDesignAsRun(r, ld, run); err != nil {
 			return nil, err
 		}
-		warnings = append(warnings, pointWarnings(r.Outcome, ld.Data)...)
+		// The outcome as run holds it before any fit: on imputed data the
+		// sets (Imputed) and the data file as read (Observed), whose notes,
+		// ranges and levels run's warnings read (AsRead, levelRows,
+		// fittedRanges, usedRows).
+		or := &OutcomeResult{Design: ld.Design, Data: ld.Data, FitData: ld.FitData, dataOptions: r.Options, Imputed: run}
+		if run != nil {
+			or.Observed = run.observed
+		}
+		warnings = append(warnings, pointWarnings(r.Outcome, or.AsRead())...)
 		used, err := a.rowsFitted(r, ld.Data, run)
 		if err != nil {
 			return nil, err
@@ -46,8 +54,12 @@ func CheckData(p *plan.Plan) ([]string, error) {
 			warnings = append(warnings, fmt.Sprintf("outcome %s: %s", r.Outcome, w))
 		}
 		levelRows := used
-		if a.Imputes() || a.Imputed != nil {
-			// The rows as read, as run counts them (OutcomeResult.levelRows).
+		switch {
+		case run != nil:
+			// The rows as read, as run counts them.
+			levelRows = or.levelRows()
+		case a.Imputes():
+			// Nothing to impute: the rows as read.
 			if levelRows, err = a.loadIncomplete(r); err != nil {
 				return nil, err
 			}
@@ -62,10 +74,10 @@ func CheckData(p *plan.Plan) ([]string, error) {
 		if w := a.SingularModels(r, used, gridModels(a, terms), len(ld.Data.Categories), allColumns(terms)); w != "" {
 			warnings = append(warnings, fmt.Sprintf("outcome %s: %s", r.Outcome, w))
 		}
-		if w := ProfileOutsideWarning(r.Outcome, profileOutside(a, newSourceRanges(ld.Design, ld.Data), r.Options.Keep)); w != "" {
+		if w := ProfileOutsideWarning(r.Outcome, profileOutside(a, or.fittedRanges(), r.Options.Keep)); w != "" {
 			warnings = append(warnings, w)
 		}
-		if w := ProfileUndefinedWarning(r.Outcome, profileUndefined(a, &OutcomeResult{Design: ld.Design, Data: ld.Data})); w != "" {
+		if w := ProfileUndefinedWarning(r.Outcome, profileUndefined(a, or)); w != "" {
 			warnings = append(warnings, w)
 		}
 		scopes = append(scopes, hypothesisScope(p.Outcomes[i].Column, ld.Design, ld.Data.Categories))

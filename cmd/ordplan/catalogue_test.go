@@ -1276,10 +1276,21 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`I19.yaml: data.imputed: imputed set 2, imp-other.csv (imp = 2), line 124: column "a" is 7.25 where the data file d.csv, line 4, has the observed value -1.6773; an imputed set must keep every observed value of the data file`}},
 		{id: "I27", name: "check: imputed sets whose category and level occur only in the data file's incomplete rows", args: []string{"check"}, setup: imputedIncomplete,
 			plan: imputedIncompletePlan(`["1", "2", "3"]`), code: 0,
-			want: []string{`I27.yaml: plan is valid`}},
+			want: []string{`I27.yaml: plan is valid`},
+			check: func(t *testing.T, dir, out, errs string) {
+				// W34, of the data file as read, as run warns.
+				if !strings.Contains(errs, `I27.yaml: outcome y: Predictor column "a" is observed in 47 of the 120 rows (73 missing, 60.8%), fewer than half: more of its values are imputed than observed`) {
+					t.Errorf("stderr lacks W34: %s", errs)
+				}
+			}},
 		{id: "I27", name: "run: imputed sets whose category and level occur only in the data file's incomplete rows", args: []string{"run"}, setup: imputedIncomplete,
 			plan: imputedIncompletePlan(`["1", "2", "3"]`), code: 0,
-			want: []string{`y: chosen: `}},
+			want: []string{`y: chosen: `},
+			check: func(t *testing.T, dir, out, errs string) {
+				if !strings.Contains(errs, `I27.yaml: outcome y: Predictor column "a" is observed in 47 of the 120 rows (73 missing, 60.8%), fewer than half: more of its values are imputed than observed`) {
+					t.Errorf("stderr lacks W34: %s", errs)
+				}
+			}},
 		{id: "W20", name: "imputed sets whose cluster ids differ between the sets", args: []string{"check"}, setup: imputedClusterData,
 			plan: edit("  file: d.csv\n", "  file: clu.csv\n  cluster: three\n  imputed: {file: imp-clu.csv, column: imp}\n", "rules:", "covariance: clustered\nrules:"), code: 1,
 			want: []string{`data.imputed: imputed set 2, imp-clu.csv (imp = 2), line 122: the cluster column "three" (data.cluster) is "z" where imputed set 1, imp-clu.csv (imp = 1), line 2, has "k"; cluster ids are not imputed, and Rubin's rules need the same clusters in every imputed set (under clustered errors the complete-data degrees of freedom are the clusters less one): make the imputed sets again keeping the data file's cluster ids`}},
