@@ -30,6 +30,9 @@ func (d *decoder) decodeData(n *yaml.Node, data *Data) {
 	if v := m.get("file"); v != nil {
 		if s, ok := d.name(v, "data.file"); ok {
 			data.File = s
+			if n := deref(v); n != nil {
+				data.FileAt = PartEntry{Line: n.Line, Col: n.Column}
+			}
 		}
 	}
 	if v := m.get("parts"); v != nil && d.nonEmpty(v, "data.parts", "part (a file name or pattern)") {

@@ -68,7 +68,10 @@ type Data struct {
 	// PartOf gives, for each part of PartFiles, the entry of data.parts
 	// it comes from (a name, or a pattern among whose matches it is):
 	// PartKey and PartWhere name it.
-	PartOf        []PartEntry
+	PartOf []PartEntry
+	// FileAt is where data.file's value is in the plan file (Line 0:
+	// not known, as for a file set by SetFile): FileWhere names it.
+	FileAt        PartEntry
 	Missing       string   // "drop" (default), "refuse" or "impute" (MissingImpute)
 	MissingValues []string // nil = reader default; empty = nothing counts as missing
 	Delimiter     string   // "comma" (default), "semicolon" or "tab"
@@ -296,6 +299,7 @@ func (m Models) Backward() bool { return m.Direction == "backward" }
 func (d *Data) SetFile(file, path string) {
 	d.File, d.Path = file, path
 	d.Parts, d.PartFiles, d.PartPaths, d.PartOf = nil, nil, nil, nil
+	d.FileAt = PartEntry{}
 	d.Written = true
 }
 
@@ -321,6 +325,12 @@ func (d *Data) PartWhere(planFile string, k int, err error) error {
 		e.Line, e.Col = d.PartOf[k].Line, d.PartOf[k].Col
 	}
 	return e
+}
+
+// FileWhere is an error about the data file found after the plan was
+// read, at the plan's data.file: PLAN:LINE:COL: data.file: err.
+func (d *Data) FileWhere(planFile string, err error) error {
+	return &Error{File: planFile, Key: "data.file", Line: d.FileAt.Line, Col: d.FileAt.Col, Msg: err.Error()}
 }
 
 // Paths are the files the data are read from: the parts, or the file.

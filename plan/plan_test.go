@@ -52,6 +52,7 @@ func TestExamplePlan(t *testing.T) {
 	check("Data", p.Data, Data{
 		File:          "data/quietstreets.csv",
 		Path:          filepath.Join("..", "plans", "data", "quietstreets.csv"),
+		FileAt:        PartEntry{Line: 11, Col: 9},
 		Missing:       "drop",
 		MissingValues: []string{"", "NA"},
 		Delimiter:     "comma",
@@ -113,7 +114,7 @@ func TestDefaults(t *testing.T) {
 	}
 	check("Seed", p.Seed, uint64(1))
 	check("Covariance", p.Covariance, fit.Observed)
-	check("Data", p.Data, Data{File: "d.csv", Path: filepath.Join("plans", "d.csv"), Missing: "drop", WeightKind: "frequency", Delimiter: "comma", Decimal: "point"})
+	check("Data", p.Data, Data{File: "d.csv", Path: filepath.Join("plans", "d.csv"), FileAt: PartEntry{Line: 3, Col: 9}, Missing: "drop", WeightKind: "frequency", Delimiter: "comma", Decimal: "point"})
 	check("Outcomes", p.Outcomes, []Outcome{{Column: "y", Label: "y"}})
 	check("Approaches", p.Models.Approaches, []fit.Comparison{fit.Cumulative, fit.Stage, fit.Adjacent})
 	check("Direction", p.Models.Direction, "forward")

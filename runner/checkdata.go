@@ -19,10 +19,18 @@ import (
 // warnings the data bring (too few clusters for clustered errors:
 // Analysis.FewClusters), one per outcome concerned.
 func CheckData(p *plan.Plan) ([]string, error) {
+	a := ResolvePlan(p)
+	// The data read whole first, as run pins them (pinData): a file or
+	// part that is not UTF-8 text, say, is named at its plan key and line
+	// as run names it.
+	_, _, unpin, err := pinData(a)
+	if err != nil {
+		return nil, err
+	}
+	defer unpin()
 	if err := ValidateData(p); err != nil {
 		return nil, err
 	}
-	a := ResolvePlan(p)
 	var scopes []plan.ParameterScope
 	var warnings []string
 	for i, r := range a.Outcomes {

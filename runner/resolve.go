@@ -33,8 +33,9 @@ type Analysis struct {
 	// DataPaths are the files of data held as parts (nil: DataPath), and
 	// DataFiles the parts as the plan names them.
 	DataPaths, DataFiles []string
-	// PlanData are a plan's data held as parts (nil otherwise), whose
-	// PartWhere names a part's entry of data.parts in messages.
+	// PlanData are a plan's data (nil: not from a plan), whose PartWhere
+	// names a part's entry of data.parts in messages, and FileWhere
+	// data.file.
 	PlanData *plan.Data
 	// Imputed names imputed versions of the data made elsewhere (nil:
 	// none); Imputation says how the program imputes the data itself
@@ -261,9 +262,9 @@ func ResolvePlan(p *plan.Plan) *Analysis {
 	a := &Analysis{Source: p.Path, Plan: true, DataFile: p.Data.Name(), DataPath: p.Data.Path,
 		Errors: covariancePolicy(p.Covariance, p.Data.Sampling(), p.FewClusters),
 		Models: p.Models, Tests: p.Tests, Rules: p.Rules, Inference: p.Inference, NewRowsDialect: p.Data.NewRowsDialect(), Level: p.Report.ConfidenceLevel,
-		PanelsBy: p.Report.PanelsBy, Stability: p.SelectionStability}
+		PanelsBy: p.Report.PanelsBy, Stability: p.SelectionStability, PlanData: &p.Data}
 	if p.Data.Parts != nil {
-		a.DataPaths, a.DataFiles, a.PlanData = p.Data.PartPaths, p.Data.PartFiles, &p.Data
+		a.DataPaths, a.DataFiles = p.Data.PartPaths, p.Data.PartFiles
 	}
 	a.Imputed = p.Data.Imputed
 	a.Declared = declaredBounds(p.Dictionary)

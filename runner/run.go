@@ -407,6 +407,9 @@ func pinData(a *Analysis) (func() string, []DataRef, func(), error) {
 	if a.DataPaths == nil {
 		h, unpin, err := data.PinEarly(a.DataPath)
 		if err != nil {
+			if a.PlanData != nil {
+				return nil, nil, nil, a.PlanData.FileWhere(a.Source, err)
+			}
 			return nil, nil, nil, fmt.Errorf("%s: data.file: %v", a.Source, err)
 		}
 		return h, nil, unpin, nil

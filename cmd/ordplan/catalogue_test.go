@@ -1573,6 +1573,24 @@ func catalogue(dir string) (items []badInput) {
 			},
 			plan: edit("file: d.csv", "parts: [d.csv, latin1part.csv]"), code: 1,
 			want: []string{`D18.yaml:3:18: data.parts[1]: latin1part.csv: is not UTF-8 text (byte 0xe9 on line 2 is not valid UTF-8; perhaps Latin-1 or Windows-1252): save the file as UTF-8`}},
+		{id: "D18", name: "check: a part of data.parts that is not UTF-8: at its entry data.parts[1], as run", args: []string{"check"},
+			setup: func(t *testing.T, dir, id string) {
+				withColumns(t, dir, "latin1part.csv", "note", func(i int, _ []string) string { return "caf\xe9" })
+			},
+			plan: edit("file: d.csv", "parts: [d.csv, latin1part.csv]"), code: 1,
+			want: []string{`D18.yaml:3:18: data.parts[1]: latin1part.csv: is not UTF-8 text (byte 0xe9 on line 2 is not valid UTF-8; perhaps Latin-1 or Windows-1252): save the file as UTF-8`}},
+		{id: "D18", name: "check: a data file not UTF-8 past its header: at data.file", args: []string{"check"},
+			setup: func(t *testing.T, dir, id string) {
+				withColumns(t, dir, "latin1rows.csv", "note", func(i int, _ []string) string { return "caf\xe9" })
+			},
+			plan: edit("file: d.csv", "file: latin1rows.csv"), code: 1,
+			want: []string{`D18.yaml:3:9: data.file: latin1rows.csv: is not UTF-8 text (byte 0xe9 on line 2 is not valid UTF-8; perhaps Latin-1 or Windows-1252): save the file as UTF-8`}},
+		{id: "D18", name: "run: a data file not UTF-8 past its header: at data.file", args: []string{"run"},
+			setup: func(t *testing.T, dir, id string) {
+				withColumns(t, dir, "latin1rows.csv", "note", func(i int, _ []string) string { return "caf\xe9" })
+			},
+			plan: edit("file: d.csv", "file: latin1rows.csv"), code: 1,
+			want: []string{`D18.yaml:3:9: data.file: latin1rows.csv: is not UTF-8 text (byte 0xe9 on line 2 is not valid UTF-8; perhaps Latin-1 or Windows-1252): save the file as UTF-8`}},
 		{id: "D19", name: "file in another CSV dialect than the plan says", args: []string{"check"}, plan: edit("file: d.csv", "file: semi.csv"), code: 1,
 			want: []string{`D19.yaml:3:3: data.delimiter: data file semi.csv: the file looks semicolon-separated with a decimal comma, but is read as comma-separated with a decimal point: set delimiter: semicolon and decimal: comma under data (ordplan fit: --delimiter semicolon --decimal comma)`}},
 		{id: "D20", name: "decimal comma read with a decimal point", args: fitArgs(d("semi.csv"), "--predictors", "a,b", "--delimiter", "semicolon"), code: 1,
