@@ -235,17 +235,13 @@ func boundaryChart(d *doc, pred, shown, holds string, cats []string, est, se, cr
 	}
 	// Long category names make long boundary names: they turn, shortened
 	// to an ellipsis beyond a width (the tooltip and the table above give
-	// them whole), and the axis name moves below them.
-	axisNames := bounds
-	labels := layoutCategories(bounds, 10, chartTextWidth-50, 130)
-	if labels.rotate != 0 {
-		// Two lines, lower and upper category, so that both show (the
-		// static figure too).
-		axisNames = make([]string, q)
-		for m := range axisNames {
-			axisNames[m] = cats[m] + "/\n" + cats[m+1]
-		}
-		labels = layoutCategories(axisNames, 10, chartTextWidth-50, 130)
+	// them whole), in two lines, lower and upper category, so that both
+	// show, and the axis name moves below them; on a phone, where the
+	// chart is narrower, they take two lines or turn where a wider chart
+	// has them upright in one (chartFrame.xCategories).
+	turned := make([]string, q)
+	for m := range turned {
+		turned[m] = cats[m] + "/\n" + cats[m+1]
 	}
 	sub := "slope at each boundary"
 	if holds != "" {
@@ -254,14 +250,14 @@ func boundaryChart(d *doc, pred, shown, holds string, cats []string, est, se, cr
 	if shown == "" {
 		shown = pred
 	}
-	fr := d.frame(chartFrame{title: shown, subtitle: sub, height: 340 + int(labels.extent-labels.upright(10)),
-		grid: opts.Grid{Left: leftFor(labels, "4%"), Right: "6%", Top: "60", Bottom: "60"}, legend: legend,
-		lineOnly: map[string]bool{band: true, "parallel": true}})
+	fr := d.frame(chartFrame{title: shown, subtitle: sub, height: 340,
+		grid: opts.Grid{Right: "6%", Top: "60", Bottom: "60"}, legend: legend,
+		lineOnly:    map[string]bool{band: true, "parallel": true},
+		xCategories: &categoryAxis{name: "boundary", names: bounds, turned: turned, size: 10, margin: 50, maxWidth: 130, left: "4%", turns: []float64{30, 45}}})
 	l := charts.NewLine()
 	l.SetGlobalOptions(append(fr.opts(),
-		charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: "boundary", NameLocation: "middle", NameGap: int(labels.extent) + 7,
-			AxisLabel: labels.axisLabel(10)}),
 		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: "slope", Scale: opts.Bool(true)}))...)
+	axisNames := fr.xNames
 	l.SetXAxis(axisNames)
 	l.AddSeries("nonparallel", lineData(est), lineStyle(colorEstimate, 2.5, false, true)...)
 	// Both bounds carry the same name, so the legend shows one entry.

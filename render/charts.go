@@ -88,6 +88,67 @@ type chartFrame struct {
 	// tooltipNames are the names the axis tooltip gives the series, in
 	// their order, where series share a name (nil: their own names).
 	tooltipNames []string
+	// xCategories: the x axis is of categories whose labels the frame
+	// lays out at each width (nil: the chart sets its own x axis). The
+	// chart's height is then that with upright labels: turned labels make
+	// it taller by their extent, so that the plot keeps its size.
+	xCategories *categoryAxis
+	xNames      []string // set by opts: xCategories' labels at the chart's usual width
+}
+
+// categoryAxis is a category x axis laid out by its chart's width
+// (layoutCategories): its labels upright while they fit their share of
+// the axis, else turned, in the lines of turned if given (a boundary's
+// lower and upper category), so that a phone's narrow chart turns
+// labels that stand upright in a wider one.
+type categoryAxis struct {
+	name     string   // the axis's name, below the labels
+	names    []string // the labels
+	turned   []string // the labels when they turn (nil: names)
+	size     float64  // font size
+	margin   float64  // pixels of the chart's text width the axis does not take
+	maxWidth float64  // the most a turned label takes
+	left     string   // the plot's left margin while labels stand upright
+	turns    []float64
+}
+
+// at is the axis's labels and their layout in a text width of width
+// pixels.
+func (a *categoryAxis) at(width float64) ([]string, categoryLabels) {
+	l := layoutCategories(a.names, a.size, width-a.margin, a.maxWidth, a.turns...)
+	if l.rotate != 0 && a.turned != nil {
+		return a.turned, layoutCategories(a.turned, a.size, width-a.margin, a.maxWidth, a.turns...)
+	}
+	return a.names, l
+}
+
+// narrowXAxis is what a narrow chart changes of its category x axis: every
+// field given, so that the usual layout sets each back.
+type narrowXAxis struct {
+	Data      []string    `json:"data"`
+	NameGap   int         `json:"nameGap"`
+	AxisLabel narrowLabel `json:"axisLabel"`
+}
+
+type narrowLabel struct {
+	Rotate   float64 `json:"rotate"`
+	Interval any     `json:"interval"` // 0 or "auto"
+	Width    int     `json:"width,omitempty"`
+	Overflow string  `json:"overflow"`
+	Ellipsis string  `json:"ellipsis"`
+}
+
+// xAxisOf is the narrow option's x axis for these labels and layout.
+func (a *categoryAxis) xAxisOf(names []string, l categoryLabels) *[1]narrowXAxis {
+	x := narrowXAxis{Data: names, NameGap: int(l.extent) + 7,
+		AxisLabel: narrowLabel{Rotate: l.rotate, Interval: "auto", Overflow: "none", Ellipsis: ellipsis}}
+	if l.interval == "0" {
+		x.AxisLabel.Interval = 0
+	}
+	if l.width > 0 {
+		x.AxisLabel.Width, x.AxisLabel.Overflow = int(l.width), "truncate"
+	}
+	return &[1]narrowXAxis{x}
 }
 
 // narrowLayout is a chart's layouts when it is narrower than chartNarrow
@@ -119,8 +180,10 @@ type narrowOption struct {
 		Top    string `json:"top,omitempty"`
 		Bottom string `json:"bottom,omitempty"`
 		Right  string `json:"right,omitempty"`
+		Left   string `json:"left,omitempty"`
 	} `json:"grid"`
-	Legend *narrowLegend `json:"legend,omitempty"`
+	Legend *narrowLegend   `json:"legend,omitempty"`
+	XAxis  *[1]narrowXAxis `json:"xAxis,omitempty"`
 }
 
 // narrowLegend is where a legend that moves (chartFrame.legendRight)
@@ -222,22 +285,39 @@ func (fr *chartFrame) legendWidth() int {
 // rows of the legend beyond the first make the chart taller (fr.height
 // grows) so that the plot keeps its size.
 func (fr *chartFrame) opts() []charts.GlobalOpts {
-	// extra pixels above the plot and below it, at a text width, with
-	// the legend below the plot or not.
-	room := func(width float64, legendBelow bool) (title, sub string, above, below int) {
-		title, sub, above = chartTitle(fr.mark, fr.title, fr.subtitle, width)
+	// The layout at a text width, with the legend below the plot or not:
+	// the title and subtitle, the pixels added above the plot and below
+	// it, and the x axis's labels if the frame lays them out.
+	type layout struct {
+		title, sub   string
+		above, below int
+		labels       int // pixels turned labels add below the plot, inside its grid (ContainLabel)
+		xNames       []string
+		xLabels      categoryLabels
+	}
+	room := func(width float64, legendBelow bool) layout {
+		var l layout
+		l.title, l.sub, l.above = chartTitle(fr.mark, fr.title, fr.subtitle, width)
 		// The y axis's name stands above the plot, below the subtitle,
 		// which may reach over it at phone width: the plot moves down
 		// clear of it.
-		above += yNameRoom
+		l.above += yNameRoom
 		if legendBelow {
-			below = (legendRows(fr.legend, width, float64(fr.legendWidth())) - 1) * legendRow
+			l.below = (legendRows(fr.legend, width, float64(fr.legendWidth())) - 1) * legendRow
 		} else {
-			below = -legendStrip
+			l.below = -legendStrip
 		}
-		return title, sub, above, below
+		if a := fr.xCategories; a != nil {
+			l.xNames, l.xLabels = a.at(width)
+			l.labels = int(l.xLabels.extent - l.xLabels.upright(a.size))
+		}
+		return l
 	}
-	title, sub, above, below := room(chartTextWidth, !fr.legendRight)
+	same := func(a, b layout) bool {
+		return a.title == b.title && a.sub == b.sub && a.above == b.above && a.below == b.below && a.labels == b.labels &&
+			slices.Equal(a.xNames, b.xNames) && a.xLabels == b.xLabels
+	}
+	wl := room(chartTextWidth, !fr.legendRight)
 	grid := fr.grid
 	grid.ContainLabel = opts.Bool(true)
 	top, bottom := grid.Top, grid.Bottom
@@ -245,10 +325,21 @@ func (fr *chartFrame) opts() []charts.GlobalOpts {
 	if fr.yNameBeside {
 		beside = yNameRoom
 	}
-	grid.Top, grid.Bottom = addPixels(top, 60, above-beside), addPixels(bottom, 60, below)
+	option := func(l layout) narrowOption {
+		o := newNarrowOption(l.title, l.sub, addPixels(top, 60, l.above-beside), addPixels(bottom, 60, l.below))
+		if a := fr.xCategories; a != nil {
+			o.Grid[0].Left = leftFor(l.xLabels, a.left)
+			o.XAxis = a.xAxisOf(l.xNames, l.xLabels)
+		}
+		return o
+	}
+	wide := option(wl)
+	grid.Top, grid.Bottom = wide.Grid[0].Top, wide.Grid[0].Bottom
+	if fr.xCategories != nil {
+		grid.Left = wide.Grid[0].Left
+	}
 	height := fr.height
-	fr.height += above + below
-	wide := newNarrowOption(title, sub, grid.Top, grid.Bottom)
+	fr.height += wl.above + wl.below + wl.labels
 	var legend *narrowLegend
 	if fr.legendRight {
 		wide.Grid[0].Right = grid.Right
@@ -259,31 +350,37 @@ func (fr *chartFrame) opts() []charts.GlobalOpts {
 	}
 	n := &narrowLayout{wide: wide}
 	last := chartNarrow
-	lt, ls, la, lb := title, sub, above, below
+	ll := wl
 	for _, w := range narrowSteps {
-		nt, ns, na, nb := room(float64(w-chartPadding), true)
-		if nt != lt || ns != ls || na != la || nb != lb {
-			o := newNarrowOption(nt, ns, addPixels(top, 60, na-beside), addPixels(bottom, 60, nb))
+		nl := room(float64(w-chartPadding), true)
+		if !same(nl, ll) {
+			o := option(nl)
 			if legend != nil {
 				o.Grid[0].Right, o.Legend = fr.rightBelow, legend
 			}
-			n.steps = append(n.steps, narrowStep{below: last, height: height + na + nb, option: o})
-			lt, ls, la, lb = nt, ns, na, nb
+			n.steps = append(n.steps, narrowStep{below: last, height: height + nl.above + nl.below + nl.labels, option: o})
+			ll = nl
 		}
 		last = w
 	}
 	if len(n.steps) > 0 {
 		fr.narrow = n
 	}
-	return []charts.GlobalOpts{
+	fr.xNames = wl.xNames
+	out := []charts.GlobalOpts{
 		charts.WithInitializationOpts(opts.Initialization{ChartID: fr.id, Width: "100%", Height: strconv.Itoa(fr.height) + "px"}),
 		charts.WithAnimation(false),
-		charts.WithTitleOpts(opts.Title{Title: title, Subtitle: sub, Left: "center",
+		charts.WithTitleOpts(opts.Title{Title: wl.title, Subtitle: wl.sub, Left: "center",
 			TitleStyle: &opts.TextStyle{FontSize: titleSize, LineHeight: titleLine}, SubtitleStyle: &opts.TextStyle{FontSize: subtitleSize, LineHeight: subtitleLine}}),
 		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "axis"}),
 		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Bottom: "0", Data: fr.legendData()}),
 		charts.WithGridOpts(grid),
 	}
+	if a := fr.xCategories; a != nil {
+		out = append(out, charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: a.name, NameLocation: "middle", NameGap: int(wl.xLabels.extent) + 7,
+			AxisLabel: wl.xLabels.axisLabel(int(a.size))}))
+	}
+	return out
 }
 
 // addPixels adds px to a margin in pixels ("" stands for def); a margin

@@ -236,10 +236,11 @@ func legendRows(names []string, width, most float64) int {
 }
 
 // categoryLabels is the layout of the labels of a category axis: upright
-// when every label fits its share of the axis, else turned and shortened
-// to at most maxWidth (the tooltip still gives the whole name), with
-// every label shown while they keep apart and the library thinning them
-// out beyond that.
+// when every label fits its share of the axis, else turned by the first
+// of turns (degrees; none given: 30) at which they keep apart, and
+// shortened to at most maxWidth (the tooltip still gives the whole name),
+// with every label shown while they keep apart and the library thinning
+// them out, at the last angle, beyond that.
 type categoryLabels struct {
 	rotate   float64 // degrees
 	width    float64 // pixels a label may take (0: all of it)
@@ -248,7 +249,10 @@ type categoryLabels struct {
 	overhang float64 // pixels the first label reaches left of its tick
 }
 
-func layoutCategories(names []string, size, axisWidth, maxWidth float64) categoryLabels {
+func layoutCategories(names []string, size, axisWidth, maxWidth float64, turns ...float64) categoryLabels {
+	if len(turns) == 0 {
+		turns = []float64{30}
+	}
 	// A label may have several lines; the library cuts each at the width.
 	lineWidth := func(n string) float64 {
 		w := 0.0
@@ -267,14 +271,17 @@ func layoutCategories(names []string, size, axisWidth, maxWidth float64) categor
 	if widest <= slot-2 {
 		return categoryLabels{interval: "0", extent: lineH + 8, overhang: lineWidth(names[0]) / 2}
 	}
-	const deg = 30.0
-	th := deg * math.Pi / 180
 	w := min(widest, maxWidth)
 	first := min(lineWidth(names[0]), maxWidth)
-	l := categoryLabels{rotate: deg, width: maxWidth, interval: "0",
-		extent:   8 + w*math.Sin(th) + lineH*math.Cos(th),
-		overhang: first*math.Cos(th) + lineH*math.Sin(th)/2}
-	if slot*math.Sin(th) < lineH+2 {
+	var l categoryLabels
+	for _, deg := range turns {
+		th := deg * math.Pi / 180
+		l = categoryLabels{rotate: deg, width: maxWidth, interval: "0",
+			extent:   8 + w*math.Sin(th) + lineH*math.Cos(th),
+			overhang: first*math.Cos(th) + lineH*math.Sin(th)/2}
+		if slot*math.Sin(th) >= lineH+2 {
+			break
+		}
 		l.interval = ""
 	}
 	if widest <= maxWidth {

@@ -2,10 +2,14 @@ package render
 
 import (
 	"encoding/json"
+	"math"
 	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
+
+	"github.com/go-echarts/go-echarts/v2/charts"
 )
 
 // chartLayout is what a chart's option and its media options set of its
@@ -395,5 +399,95 @@ func TestCumulativeLegendBelowWhenNarrow(t *testing.T) {
 	}
 	if pairs == 0 {
 		t.Fatal("no chart of cumulative probabilities in the golden report")
+	}
+}
+
+// TestNarrowBoundaryLabelsKeepApart: the boundary charts' x axis labels
+// stand upright in one line at the usual width, and on a phone, where the
+// chart is narrower, they are laid out again at each step: in two lines
+// (lower and upper category), upright while they fit their share of the
+// axis, turned where they do not, every label shown and none touching the
+// next at the narrowest width the step serves (they overlapped at 270
+// pixels, laid out for 440). The chart grows by as much as the labels
+// reach further down (their name moves by as much), so the plot keeps
+// its size.
+func TestNarrowBoundaryLabelsKeepApart(t *testing.T) {
+	cats := []string{"very_unsafe", "unsafe", "neutral", "safe", "very_safe"}
+	q := len(cats) - 1
+	bounds, turned := make([]string, q), make([]string, q)
+	for m := range bounds {
+		bounds[m] = cats[m] + "/" + cats[m+1]
+		turned[m] = cats[m] + "/\n" + cats[m+1]
+	}
+	f := &chartFrame{id: "chart-1", title: "female", subtitle: "slope at each boundary", height: 340, grid: predictionGrid,
+		legend:      []string{"nonparallel", "95% interval", "parallel"},
+		xCategories: &categoryAxis{name: "boundary", names: bounds, turned: turned, size: 10, margin: 50, maxWidth: 130, left: "4%", turns: []float64{30, 45}}}
+	l := charts.NewLine()
+	l.SetGlobalOptions(f.opts()...)
+	l.SetXAxis(f.xNames)
+	c := newChart(f, "", l)
+	type axis struct {
+		Data      []string
+		NameGap   int
+		AxisLabel struct {
+			Rotate   float64
+			Interval any
+		}
+	}
+	var opt struct {
+		XAxis []axis
+		Media []struct {
+			Query  *struct{ MaxWidth int }
+			Option struct{ XAxis []axis }
+		}
+	}
+	if err := json.Unmarshal([]byte(c.option), &opt); err != nil {
+		t.Fatal(err)
+	}
+	if !slices.Equal(opt.XAxis[0].Data, bounds) || opt.XAxis[0].AxisLabel.Rotate != 0 {
+		t.Fatalf("usual width: labels %q turned %v, want %q upright", opt.XAxis[0].Data, opt.XAxis[0].AxisLabel.Rotate, bounds)
+	}
+	if len(c.narrow) == 0 || len(opt.Media) != 1+len(c.narrow) {
+		t.Fatalf("%d media entries for narrow steps %+v", len(opt.Media), c.narrow)
+	}
+	if x := opt.Media[0].Option.XAxis; len(x) != 1 || !slices.Equal(x[0].Data, bounds) || x[0].NameGap != opt.XAxis[0].NameGap || x[0].AxisLabel.Rotate != 0 {
+		t.Errorf("the usual layout %+v does not set the labels back (%+v)", x, opt.XAxis)
+	}
+	turns := 0
+	for i, s := range c.narrow {
+		// The narrowest chart this step serves: the next step's width.
+		w := narrowSteps[len(narrowSteps)-1]
+		if i+1 < len(c.narrow) {
+			w = c.narrow[i+1].below
+		}
+		x := opt.Media[1+i].Option.XAxis[0]
+		if !slices.Equal(x.Data, turned) || x.AxisLabel.Interval != 0.0 {
+			t.Errorf("below %d: labels %q, interval %v: want every one in two lines", s.below, x.Data, x.AxisLabel.Interval)
+		}
+		slot := float64(w-chartPadding-50) / float64(q)
+		lines := 2.0
+		if r := x.AxisLabel.Rotate; r == 0 {
+			for _, n := range x.Data {
+				for _, line := range strings.Split(n, "\n") {
+					if textWidth(line, 10) > slot-2 {
+						t.Errorf("below %d: upright label line %q wider than its share of the axis (%.0f) at %d px", s.below, line, slot, w)
+					}
+				}
+			}
+		} else {
+			turns++
+			if slot*math.Sin(r*math.Pi/180) < 1.3*10*lines+2 {
+				t.Errorf("below %d: labels turned %v degrees touch at %d px", s.below, r, w)
+			}
+		}
+		// The plot keeps its size: the chart grows by the legend's rows
+		// and the labels' reach, which moves the axis's name.
+		rows := legendRows(f.legend, float64(w-chartPadding), legendTextMax) - legendRows(f.legend, chartTextWidth, legendTextMax)
+		if got, want := s.height-c.height, rows*legendRow+x.NameGap-opt.XAxis[0].NameGap; got != want {
+			t.Errorf("below %d: %d px taller, want %d (legend rows %d, name gap %d -> %d)", s.below, got, want, rows, opt.XAxis[0].NameGap, x.NameGap)
+		}
+	}
+	if turns == 0 {
+		t.Errorf("the labels never turn, even at %d px", narrowSteps[len(narrowSteps)-1])
 	}
 }
