@@ -20,6 +20,7 @@ type chart struct {
 	mark    string       // the first line of the title (doc.mark), or ""
 	height  int          // pixels; the width follows the page
 	narrow  []narrowStep // its heights in narrower charts (nil: height at every width)
+	wider   []wideStep   // its heights in wider charts (nil: height at every width)
 	caption string
 	option  string  // JSON
 	static  *figure // the same chart as a static image for report.md (nil: none)
@@ -52,7 +53,7 @@ func newChart(fr *chartFrame, caption string, c echartsChart) *chart {
 	fmt.Sscanf(fr.id, "chart-%d", &n)
 	ch := &chart{number: n, id: fr.id, mark: fr.mark, height: fr.height, caption: caption, option: js}
 	if fr.narrow != nil {
-		ch.narrow = fr.narrow.steps
+		ch.narrow, ch.wider = fr.narrow.steps, fr.narrow.wider
 	}
 	return ch
 }
@@ -156,9 +157,21 @@ func (a *categoryAxis) xAxisOf(names []string, l categoryLabels) *[1]narrowXAxis
 // wrapped to the step's text width, the plot's top and bottom margins
 // moved by the lines and legend rows that makes, and the chart's height,
 // so that the plot keeps its size.
+// Its layouts when it is wider than chartNarrow (alone in its row) are
+// kept with them: at each of wideSteps, the title, subtitle and legend
+// laid out in the width the chart has.
 type narrowLayout struct {
 	wide  narrowOption // the options at the chart's usual width
 	steps []narrowStep // from the widest; only those that change the layout
+	wider []wideStep   // from the narrowest; only those that change the layout
+}
+
+// wideStep is a chart's layout when it is at least from pixels wide (up
+// to the next step's width).
+type wideStep struct {
+	from   int
+	height int
+	option narrowOption
 }
 
 // narrowStep is a chart's layout when it is narrower than below pixels
@@ -207,12 +220,14 @@ func newNarrowOption(title, subtitle, top, bottom string) narrowOption {
 
 // media is the library's media option: the usual layout (a media entry
 // without a query, which the library goes back to when the chart widens
-// again), then each narrower one below its width. The library applies
-// every entry whose query holds, in order, so that the narrowest step a
-// chart is narrower than has the last word.
+// or narrows to its usual width again), then each narrower one below its
+// width and each wider one from its width. The library applies every
+// entry whose query holds, in order, so that the narrowest step a chart
+// is narrower than, or the widest it is as wide as, has the last word.
 func (n *narrowLayout) media() []any {
 	type query struct {
-		MaxWidth int `json:"maxWidth"`
+		MaxWidth int `json:"maxWidth,omitempty"`
+		MinWidth int `json:"minWidth,omitempty"`
 	}
 	out := []any{struct {
 		Option narrowOption `json:"option"`
@@ -221,21 +236,40 @@ func (n *narrowLayout) media() []any {
 		out = append(out, struct {
 			Query  query        `json:"query"`
 			Option narrowOption `json:"option"`
-		}{query{s.below - 1}, s.option})
+		}{query{MaxWidth: s.below - 1}, s.option})
+	}
+	for _, s := range n.wider {
+		out = append(out, struct {
+			Query  query        `json:"query"`
+			Option narrowOption `json:"option"`
+		}{query{MinWidth: s.from}, s.option})
 	}
 	return out
+}
+
+// wideHeights is the data-wide attribute of the chart's element: each
+// wide step's width and height, "WIDTH:HEIGHT", from the narrowest, for
+// the page's script (drawScript).
+func wideHeights(steps []wideStep) string {
+	return widthHeights(len(steps), func(i int) (int, int) { return steps[i].from, steps[i].height })
 }
 
 // heights is the data-narrow attribute of the chart's element: each
 // step's width and height, "WIDTH:HEIGHT", from the widest, for the
 // page's script (drawScript).
 func heights(steps []narrowStep) string {
+	return widthHeights(len(steps), func(i int) (int, int) { return steps[i].below, steps[i].height })
+}
+
+// widthHeights is n pairs "WIDTH:HEIGHT" separated by spaces.
+func widthHeights(n int, at func(i int) (w, h int)) string {
 	var b strings.Builder
-	for i, s := range steps {
+	for i := range n {
 		if i > 0 {
 			b.WriteByte(' ')
 		}
-		fmt.Fprintf(&b, "%d:%d", s.below, s.height)
+		w, h := at(i)
+		fmt.Fprintf(&b, "%d:%d", w, h)
 	}
 	return b.String()
 }
@@ -363,7 +397,19 @@ func (fr *chartFrame) opts() []charts.GlobalOpts {
 		}
 		last = w
 	}
-	if len(n.steps) > 0 {
+	ll = wl
+	for _, w := range wideSteps {
+		nl := room(float64(w-chartPadding), !fr.legendRight)
+		if !same(nl, ll) {
+			o := option(nl)
+			if fr.legendRight {
+				o.Grid[0].Right, o.Legend = wide.Grid[0].Right, wide.Legend
+			}
+			n.wider = append(n.wider, wideStep{from: w, height: height + nl.above + nl.below + nl.labels, option: o})
+			ll = nl
+		}
+	}
+	if len(n.steps) > 0 || len(n.wider) > 0 {
 		fr.narrow = n
 	}
 	fr.xNames = wl.xNames

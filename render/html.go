@@ -67,11 +67,13 @@ const noScriptCSS = `.table-wrap{background:linear-gradient(to right,#fff 40%,rg
 // option's ordplanTooltip (chartFrame.tooltipNames), escaped as the
 // library escapes series names. A chart with a data-narrow attribute
 // ("WIDTH:HEIGHT ...", from the widest) takes the height of the narrowest
-// WIDTH it is narrower than, before it is drawn and whenever the window's
-// size changes: its option's media queries wrap its titles there and
-// move its plot by the same lines and legend rows (narrowLayout).
+// WIDTH it is narrower than, and one with a data-wide attribute (from the
+// narrowest) that of the widest WIDTH it is as wide as, before it is
+// drawn and whenever the window's size changes: its option's media
+// queries wrap its titles there and move its plot by the same lines and
+// legend rows (narrowLayout).
 const drawScript = `var ordplanCharts={};
-function ordplanHeight(el){var n=el.getAttribute("data-narrow");if(!n){return;}if(!el.hasAttribute("data-height")){el.setAttribute("data-height",el.style.height);}var h=el.getAttribute("data-height"),s=n.split(" ");for(var i=0;i<s.length;i++){var p=s[i].split(":");if(el.clientWidth<+p[0]){h=p[1]+"px";}}el.style.height=h;}
+function ordplanHeight(el){var n=el.getAttribute("data-narrow"),w=el.getAttribute("data-wide");if(!n&&!w){return;}if(!el.hasAttribute("data-height")){el.setAttribute("data-height",el.style.height);}var h=el.getAttribute("data-height"),s=n?n.split(" "):[],p,i;for(i=0;i<s.length;i++){p=s[i].split(":");if(el.clientWidth<+p[0]){h=p[1]+"px";}}s=w?w.split(" "):[];for(i=0;i<s.length;i++){p=s[i].split(":");if(el.clientWidth>=+p[0]){h=p[1]+"px";}}el.style.height=h;}
 function ordplanTooltip(option){var n=option.ordplanTooltip;if(!n){return;}delete option.ordplanTooltip;var e=echarts.format.encodeHTML;option.tooltip.formatter=function(ps){var s=e(String(ps[0].axisValueLabel));for(var i=0;i<ps.length;i++){var p=ps[i],v=p.value;s+="<br>"+p.marker+e(n[p.seriesIndex])+" <b>"+e(String(v==null?"-":v))+"</b>";}return s;};}
 function ordplanDraw(id,option){var el=document.getElementById(id);try{ordplanHeight(el);ordplanTooltip(option);var c=echarts.init(el,null,{renderer:"canvas"});c.setOption(option);ordplanCharts[id]={chart:c,option:option};el.setAttribute("data-rendered","1");window.addEventListener("resize",function(){ordplanHeight(el);c.resize();});}catch(e){window.ordplanError(id+": "+e);}}
 function ordplanSave(url,name){var a=document.createElement("a");a.href=url;a.download=name;document.body.appendChild(a);a.click();document.body.removeChild(a);}
@@ -124,6 +126,9 @@ func (d *doc) html(title string) ([]byte, error) {
 			narrow := ""
 			if len(c.narrow) > 0 {
 				narrow = fmt.Sprintf(" data-narrow=\"%s\"", heights(c.narrow))
+			}
+			if len(c.wider) > 0 {
+				narrow += fmt.Sprintf(" data-wide=\"%s\"", wideHeights(c.wider))
 			}
 			fmt.Fprintf(&out, "<figure class=\"%s\"><div class=\"chart\" id=\"%s\" style=\"height:%dpx\"%s></div><figcaption><b>Figure %d.</b> %s</figcaption>"+
 				"<div class=\"chart-tools\">Save: <button type=\"button\" data-export=\"png\" data-chart=\"%s\">PNG</button> <button type=\"button\" data-export=\"svg\" data-chart=\"%s\">SVG</button></div></figure>\n",

@@ -29,7 +29,13 @@ import (
 // chart of w pixels gets w-chartPadding (the padding the library leaves
 // at each side of the title and legend). A screen of 400 makes a chart
 // of 350, one of 360 a chart of 310; the narrowest, narrowText, is a
-// chart 270 pixels wide on a screen of 320, the narrowest phones'.
+// chart 270 pixels wide on a screen of 320, the narrowest phones'. A
+// chart wider than the chartNarrow it is laid out for (alone in its row,
+// as a group's only chart is, or on a screen where a group's charts stand
+// one under another) is laid out again at each of wideSteps, each layout
+// serving from its width up (a chart alone on a wide screen is about 1080
+// pixels wide), so that its title and legend take the fewer lines that
+// width gives them instead of leaving those of a narrower chart empty.
 const (
 	chartTextWidth = 440
 	chartNarrow    = 480
@@ -38,6 +44,8 @@ const (
 )
 
 var narrowSteps = [...]int{400, 350, 310, narrowText + chartPadding}
+
+var wideSteps = [...]int{640, 800, 1000}
 
 // ellipsis ends a shortened text.
 const ellipsis = "…"

@@ -38,6 +38,7 @@ type chartOption struct {
 	Media   []struct {
 		Query *struct {
 			MaxWidth int `json:"maxWidth"`
+			MinWidth int `json:"minWidth"`
 		} `json:"query"`
 		Option chartLayout `json:"option"`
 	} `json:"media"`
@@ -72,7 +73,7 @@ func TestNarrowChartsWrapTitles(t *testing.T) {
 			}
 			continue
 		}
-		if len(c.narrow) == 0 || len(opt.Media) != 1+len(c.narrow) || opt.Media[0].Query != nil || c.narrow[0].below != chartNarrow {
+		if len(c.narrow) == 0 || len(opt.Media) != 1+len(c.narrow)+len(c.wider) || opt.Media[0].Query != nil || c.narrow[0].below != chartNarrow {
 			t.Fatalf("media %+v, steps %+v: want the usual layout and narrow ones from %d pixels down", opt.Media, c.narrow, chartNarrow)
 		}
 		for i, s := range c.narrow {
@@ -80,7 +81,7 @@ func TestNarrowChartsWrapTitles(t *testing.T) {
 				t.Errorf("media %d: query %+v, want below %d", 1+i, q, s.below)
 			}
 		}
-		wide, narrow := opt.Media[0].Option, opt.Media[len(opt.Media)-1].Option
+		wide, narrow := opt.Media[0].Option, opt.Media[len(c.narrow)].Option
 		if wide.Title.Text != opt.Title.Text || wide.Title.Subtext != opt.Title.Subtext || wide.Grid[0].Top != opt.Grid[0].Top {
 			t.Errorf("the default media %+v is not the chart's layout %+v", wide, opt)
 		}
@@ -317,13 +318,84 @@ func TestNarrowLegendRowsFollowWidth(t *testing.T) {
 		}
 	}
 	// The media option lists the usual layout and each step in order.
-	if len(opt.Media) != 1+len(c.narrow) {
-		t.Fatalf("%d media entries for %d steps", len(opt.Media), len(c.narrow))
+	if len(opt.Media) != 1+len(c.narrow)+len(c.wider) {
+		t.Fatalf("%d media entries for %d steps and %d wide ones", len(opt.Media), len(c.narrow), len(c.wider))
 	}
 	for i, s := range c.narrow {
 		if q := opt.Media[1+i].Query; q == nil || q.MaxWidth != s.below-1 || opt.Media[1+i].Option.Grid[0].Bottom != s.option.Grid[0].Bottom {
 			t.Errorf("media %d: %+v, want below %d with bottom %s", 1+i, opt.Media[1+i], s.below, s.option.Grid[0].Bottom)
 		}
+	}
+	for i, s := range c.wider {
+		m := opt.Media[1+len(c.narrow)+i]
+		if q := m.Query; q == nil || q.MinWidth != s.from || q.MaxWidth != 0 || m.Option.Grid[0].Bottom != s.option.Grid[0].Bottom {
+			t.Errorf("media %d: %+v, want from %d with bottom %s", 1+len(c.narrow)+i, m, s.from, s.option.Grid[0].Bottom)
+		}
+	}
+}
+
+// wideAt is the wide layout a chart w pixels wide takes: the last step
+// it is as wide as (nil: the usual layout).
+func wideAt(steps []wideStep, w int) *wideStep {
+	var at *wideStep
+	for i := range steps {
+		if w >= steps[i].from {
+			at = &steps[i]
+		}
+	}
+	return at
+}
+
+// TestWideChartsTakeFewerRows: a chart alone in its row (the calibration
+// chart, 1082 pixels wide on a screen of 1400) is laid out again at its
+// width, not only at the 440 pixels of text a chart beside another has:
+// its legend takes the one row it needs there instead of two, so the x
+// axis's name does not stand some 40 pixels above the legend. The plot's
+// bottom margin and the chart's height lose the row (a data-wide height
+// the page's script takes), the plot keeps its size, and the library's
+// media query applies the layout from the step's width up.
+func TestWideChartsTakeFewerRows(t *testing.T) {
+	legend := []string{"very_unsafe", "unsafe", "neutral", "safe", "very_safe", "expected", "observed"}
+	at := func(chart int) int { return legendRows(legend, float64(chart-chartPadding), legendTextMax) }
+	if at(chartTextWidth+chartPadding) != 2 || at(wideSteps[0]) != 1 {
+		t.Fatalf("the entries make %d rows at the usual width and %d at %d pixels, want 2 and 1", at(chartTextWidth+chartPadding), at(wideSteps[0]), wideSteps[0])
+	}
+	f := &chartFrame{id: "chart-1", title: "Observed and expected by group of predicted score", subtitle: "cumulative/constrained/logit",
+		height: 420, grid: predictionGrid, legend: legend}
+	c := newChart(f, "", newLineChart(f, []float64{1, 2, 3}))
+	var opt chartOption
+	if err := json.Unmarshal([]byte(c.option), &opt); err != nil {
+		t.Fatal(err)
+	}
+	base, _ := strconv.Atoi(predictionGrid.Bottom)
+	usual := f.height - (at(chartTextWidth+chartPadding)-1)*legendRow // the height with a one-row legend
+	for _, w := range []int{chartNarrow, wideSteps[0] - 1, wideSteps[0], 1082} {
+		bottom, height := opt.Grid[0].Bottom, c.height
+		if s := wideAt(c.wider, w); s != nil {
+			bottom, height = s.option.Grid[0].Bottom, s.height
+		}
+		rows := at(chartTextWidth + chartPadding)
+		if w >= wideSteps[0] {
+			rows = at(w)
+		}
+		if want := strconv.Itoa(base + (rows-1)*legendRow); bottom != want || height != usual+(rows-1)*legendRow {
+			t.Errorf("%d px: plot bottom %s, height %d; want %d rows: bottom %s, height %d", w, bottom, height, rows, want, usual+(rows-1)*legendRow)
+		}
+	}
+	if len(opt.Media) != 1+len(c.narrow)+len(c.wider) || len(c.wider) == 0 {
+		t.Fatalf("%d media entries for %d steps and %d wide ones", len(opt.Media), len(c.narrow), len(c.wider))
+	}
+	d := &doc{}
+	d.parts = append(d.parts, part{charts: []*chart{c}})
+	h, err := d.html("t")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if want := `data-wide="` + wideHeights(c.wider) + `"`; !strings.Contains(string(h), want) {
+		t.Errorf("report.html has no %s", want)
+	}
+	if !strings.Contains(string(h), `if(el.clientWidth>=+p[0]){h=p[1]+"px";}`) {
+		t.Errorf("the page's script does not take the wide heights")
 	}
 }
 
@@ -353,6 +425,7 @@ func TestCumulativeLegendBelowWhenNarrow(t *testing.T) {
 		Media []struct {
 			Query *struct {
 				MaxWidth int `json:"maxWidth"`
+				MinWidth int `json:"minWidth"`
 			}
 			Option layout
 		}
@@ -382,6 +455,12 @@ func TestCumulativeLegendBelowWhenNarrow(t *testing.T) {
 		wide := cum.Media[0].Option.Legend.Data
 		for _, m := range cum.Media[1:] {
 			l := m.Option.Legend
+			if m.Query.MinWidth > 0 { // wider than usual: beside the plot
+				if l == nil || l.Orient != "vertical" || l.Right != "0" || m.Option.Grid[0].Right != cum.Grid[0].Right {
+					t.Errorf("%s from %d: legend %+v, right margin %s, want beside the plot", c[1], m.Query.MinWidth, l, m.Option.Grid[0].Right)
+				}
+				continue
+			}
 			if l == nil || l.Orient != "horizontal" || l.Bottom != "0" || l.Left != "center" || l.Right != "auto" || l.Top != "auto" {
 				t.Errorf("%s below %d: legend %+v, want below the plot", c[1], m.Query.MaxWidth+1, l)
 				continue

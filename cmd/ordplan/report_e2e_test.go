@@ -211,32 +211,37 @@ func TestReportRendersInBrowser(t *testing.T) {
 // (data-narrow, which keeps its plot's size), the others keep theirs, and
 // a table wider than the screen is marked as scrolling sideways (the note
 // above it and the faded edge), while a narrow table is not; at 1400
-// pixels no chart changes height and no table of the models is marked.
+// pixels no chart takes a narrow height, a chart alone in its row whose
+// title or legend takes fewer lines there (the calibration chart) takes
+// the height of the widest step it is as wide as (data-wide), and no
+// table of the models is marked.
 // The calibration chart's tooltip names each series whole.
 func TestReportAtPhoneWidth(t *testing.T) {
 	dir, _, page := browserExample(t)
-	chartTag := regexp.MustCompile(`<div class="chart" id="(chart-\d+)" style="height: ?(\d+)px[^"]*"( data-narrow="([\d: ]+)")?[^>]*><div style="position: relative; width: (\d+)px`)
+	chartTag := regexp.MustCompile(`<div class="chart" id="(chart-\d+)" style="height: ?(\d+)px[^"]*"( data-narrow="([\d: ]+)")?( data-wide="([\d: ]+)")?[^>]*><div style="position: relative; width: (\d+)px`)
 	wraps := regexp.MustCompile(`<div class="table-wrap( [^"]*)?">`)
 	for _, width := range []int{400, 1400} {
 		dom, _ := chromium(t, filepath.Join(dir, fmt.Sprint("profile", width)), page, "--dump-dom", fmt.Sprintf("--window-size=%d,3000", width))
 		if m := errorsBox.FindStringSubmatch(dom); m == nil || strings.TrimSpace(m[1]) != "" {
 			t.Errorf("%d px: script errors: %v", width, m)
 		}
-		charts, narrowed := 0, 0
+		charts, narrowed, widened := 0, 0, 0
 		for _, m := range chartTag.FindAllStringSubmatch(dom, -1) {
 			charts++
 			tag := m[0]
 			if !strings.Contains(tag, `data-rendered="1"`) {
 				t.Errorf("%d px: %s not drawn", width, m[1])
 			}
-			if m[4] == "" {
+			if m[4] == "" && m[6] == "" {
 				continue
 			}
 			// data-narrow: "WIDTH:HEIGHT ..." from the widest; the chart
 			// takes the height of the narrowest step wider than it is (the
-			// library's canvas box gives its width), its usual one if none.
-			chartWidth, _ := strconv.Atoi(m[5])
-			want, narrows := "", map[string]bool{}
+			// library's canvas box gives its width), its usual one if none;
+			// data-wide, from the narrowest: the height of the widest step
+			// it is as wide as.
+			chartWidth, _ := strconv.Atoi(m[7])
+			want, wide, narrows := "", false, map[string]bool{}
 			for _, st := range strings.Fields(m[4]) {
 				w, h, _ := strings.Cut(st, ":")
 				narrows[h] = true
@@ -244,17 +249,28 @@ func TestReportAtPhoneWidth(t *testing.T) {
 					want = h
 				}
 			}
+			for _, st := range strings.Fields(m[6]) {
+				w, h, _ := strings.Cut(st, ":")
+				narrows[h] = true
+				if n, _ := strconv.Atoi(w); chartWidth >= n {
+					want, wide = h, true
+				}
+			}
 			if want != "" {
-				narrowed++
+				if wide {
+					widened++
+				} else {
+					narrowed++
+				}
 				if m[2] != want {
-					t.Errorf("%d px: %s is %d px wide and %s px high, want its narrow height %s (%s)", width, m[1], chartWidth, m[2], want, m[4])
+					t.Errorf("%d px: %s is %d px wide and %s px high, want its height %s (narrower %q, wider %q)", width, m[1], chartWidth, m[2], want, m[4], m[6])
 				}
 			} else if narrows[m[2]] {
-				t.Errorf("%d px: %s is %d px wide and took a narrow height (%s)", width, m[1], chartWidth, m[4])
+				t.Errorf("%d px: %s is %d px wide and took another width's height (narrower %q, wider %q)", width, m[1], chartWidth, m[4], m[6])
 			}
 		}
-		if charts < 3 || (width == 400 && narrowed == 0) {
-			t.Errorf("%d px: %d charts, %d at a narrow height", width, charts, narrowed)
+		if charts < 3 || (width == 400 && (narrowed == 0 || widened != 0)) || (width == 1400 && (narrowed != 0 || widened == 0)) {
+			t.Errorf("%d px: %d charts, %d at a narrow height, %d at a wide one", width, charts, narrowed, widened)
 		}
 		marked, all := 0, 0
 		for _, m := range wraps.FindAllStringSubmatch(dom, -1) {
