@@ -33,7 +33,7 @@ func main() {
 	speedRows := flag.Int("targets-rows", 1_000_000, "rows of the data of -only targets")
 	speedGrid := flag.Int("targets-grid-rows", 1_000_000, "rows of the data of the grid in -only targets")
 	speedRepeats := flag.Int("targets-repeats", 3, "runs of each timing of -only targets (best and median reported)")
-	memChild := flag.String("memory-child", "", "(internal) fit this model in this process and print its peak memory")
+	memChild := flag.String("memory-child", "", "(internal) fit this model (binary, cumulative/nonparallel, or grid: the 13-model grid through fit.FitGrid) in this process and print its peak memory")
 	memRows := flag.Int("memory-rows", 1_000_000, "(internal) rows of -memory-child")
 	writeOnly := flag.String("write-csv", "", "write the CSV that -only targets times `ordplan fit` on (-targets-rows rows, 10 predictors, two categories) to this file and stop")
 	flag.Parse()

@@ -76,13 +76,17 @@ func targets(w io.Writer, n, gridN, repeats int) {
 			g.grid/g.slowest, g.grid, g.gridCPU, g.gridPasses, g.singlePasses, g.name, g.slowest, g.slowestCPU, g.slowestPasses, g.gridCPU/g.slowestCPU),
 		g.grid / g.slowest, gridLimit})
 
-	for _, c := range []string{"binary", "cumulative/nonparallel"} {
+	for _, c := range []string{"binary", "cumulative/nonparallel", "grid"} {
 		res, err := memoryChild(c, n)
 		if err != nil {
 			fmt.Fprintln(os.Stderr, "bench: memory:", err)
 			continue
 		}
-		add(targetRow{fmt.Sprintf("%s, n = %s: peak resident memory of the whole process / X", c, count(n)),
+		name := c
+		if c == "grid" {
+			name = "the 13-model grid (fit.FitGrid)"
+		}
+		add(targetRow{fmt.Sprintf("%s, n = %s: peak resident memory of the whole process / X", name, count(n)),
 			fmt.Sprintf("%.2f (%.0f MB; peak heap / X %.2f; X = %.0f MB)", float64(res.RSS)/xBytes, float64(res.RSS)/1e6, float64(res.Heap)/xBytes, xBytes/1e6),
 			float64(res.RSS) / xBytes, memLimit})
 	}
@@ -294,8 +298,10 @@ func gridTimes(d *fit.Data, K int) (g gridTiming) {
 		}
 	}
 	r0 := fit.RowsEvaluated()
+	// The heap the single fits left is not the grid's.
+	runtime.GC()
 	c0 := cpuSeconds()
-	g.grid = fitAtOnce(d, g.cells)
+	g.gridHeap = float64(peak(func() { g.grid = fitAtOnce(d, g.cells) })) / float64(8*d.N()*len(d.Predictors))
 	g.gridCPU = cpuSeconds() - c0
 	g.gridPasses = float64(fit.RowsEvaluated()-r0) / float64(d.N())
 	return g
@@ -308,6 +314,7 @@ type gridTiming struct {
 	slowest, slowestCPU, slowestPasses float64
 	name                               string
 	grid, gridCPU, gridPasses          float64
+	gridHeap                           float64 // the grid's peak heap in use (its data included) / X
 	singlePasses                       float64 // the models fitted one by one, summed
 }
 
@@ -325,6 +332,7 @@ func gridReport(w io.Writer, n int) {
 	}
 	fmt.Fprintf(w, "| the grid (fit.FitGrid, %d at once) | %.2f | %.2f | %.1f (alone, summed: %.1f) |\n\n", runtime.GOMAXPROCS(0), g.grid, g.gridCPU, g.gridPasses, g.singlePasses)
 	fmt.Fprintf(w, "Grid / slowest single fit (%s): %.2f wall, %.2f CPU (limit %g).\n", g.name, g.grid/g.slowest, g.gridCPU/g.slowestCPU, gridLimit)
+	fmt.Fprintf(w, "The grid's peak heap in use, its data included, / X (n K 8 bytes): %.2f (limit %g; sampled every 20 ms).\n", g.gridHeap, memLimit)
 }
 
 // memoryResult is what a fit in a fresh process used: the peak resident
@@ -334,9 +342,10 @@ type memoryResult struct {
 	Heap uint64 `json:"heap"`
 }
 
-// memoryChild runs one fit of model (binary or cumulative/nonparallel) on
-// n generated rows in a fresh process (this program with -memory-child)
-// and returns what it used, data included.
+// memoryChild runs one fit of model (binary or cumulative/nonparallel),
+// or the 13-model grid through fit.FitGrid (grid: a plan's path, J = 5),
+// on n generated rows in a fresh process (this program with
+// -memory-child) and returns what it used, data included.
 func memoryChild(model string, n int) (memoryResult, error) {
 	exe, err := os.Executable()
 	if err != nil {
@@ -364,9 +373,17 @@ func runMemoryChild(model string, n int) {
 			m.Effects[k] = fit.Nonparallel
 		}
 	}
-	d := generate(n, K, J, 11)
 	var ferr error
-	heap := peak(func() { _, ferr = fit.Fit(d, m, fit.Options{Workers: runtime.GOMAXPROCS(0)}) })
+	var heap uint64
+	if model == "grid" {
+		d := generate(n, K, 5, 42)
+		heap = peak(func() { fitAtOnce(d, gridCells(K)) })
+		json.NewEncoder(os.Stdout).Encode(memoryResult{RSS: vmHWM(), Heap: heap})
+		runtime.KeepAlive(d)
+		return
+	}
+	d := generate(n, K, J, 11)
+	heap = peak(func() { _, ferr = fit.Fit(d, m, fit.Options{Workers: runtime.GOMAXPROCS(0)}) })
 	if ferr != nil {
 		fmt.Fprintln(os.Stderr, "bench:", ferr)
 		os.Exit(1)

@@ -142,6 +142,10 @@ type problem struct {
 	lastMu  sync.Mutex
 	last    *lastSums
 	scratch sync.Pool // *scratch, reused across evaluations
+	// parts: the sums of one block (*acc) by order, reused across
+	// evaluations (blockAcc), so that a pass leaves one acc behind, not
+	// one per block.
+	parts [3]sync.Pool
 }
 
 func newProblem(d *design, m Model, ly *layout, workers int) *problem {
@@ -215,6 +219,25 @@ func (p *problem) newAcc(order int) *acc {
 			a.T = make([]float64, kp*kp)
 		}
 	}
+	return a
+}
+
+// blockAcc is an acc of the given order with every sum 0, as newAcc
+// makes it: one that an earlier evaluation gave back (p.parts), cleared,
+// or a new one.
+func (p *problem) blockAcc(order int) *acc {
+	a, _ := p.parts[order].Get().(*acc)
+	if a == nil {
+		return p.newAcc(order)
+	}
+	a.ll, a.minLP, a.bad = 0, math.Inf(1), false
+	clear(a.V)
+	clear(a.Vp)
+	for _, S := range a.S {
+		clear(S)
+	}
+	clear(a.R)
+	clear(a.T)
 	return a
 }
 
@@ -300,7 +323,7 @@ func (p *problem) evaluate(theta []float64, order int, expected bool) *acc {
 		if s == nil {
 			s = p.newScratch()
 		}
-		a := p.newAcc(order)
+		a := p.blockAcc(order)
 		p.block(c, lo, hi, order, expected, a, s)
 		parts[b] = a
 		p.scratch.Put(s)
@@ -308,6 +331,7 @@ func (p *problem) evaluate(theta []float64, order int, expected bool) *acc {
 	total := parts[0]
 	for _, a := range parts[1:] {
 		total.add(a)
+		p.parts[order].Put(a)
 	}
 	if order >= 2 {
 		for _, S := range total.S {

@@ -2,9 +2,11 @@ package fit
 
 import (
 	"fmt"
+	"runtime"
 	"slices"
 	"strings"
 	"sync"
+	"sync/atomic"
 )
 
 // shared is what the fits of one data set share: the rank check, the
@@ -35,6 +37,9 @@ type shared struct {
 	// pays over the many passes of a grid's fits (FitGrid); a single fit
 	// keeps its memory to X and transposes the rows of each block.
 	columns bool
+	// copied: the design's columns were copied (a second X held while the
+	// grid runs; FitGrid collects after each fit).
+	copied atomic.Bool
 }
 
 // gridFit is a finished fit as a later fit may read it.
@@ -95,6 +100,7 @@ func (sh *shared) design(d *Data) *design {
 		c := des.compressed()
 		if sh.columns && (c != des || d.uncentred == nil) {
 			c = c.withColumns()
+			sh.copied.Store(true)
 		}
 		sh.des = c
 	})
@@ -246,6 +252,16 @@ func FitGrid(d *Data, models []Model, opt Options, workers int, done func(i int,
 				}
 				cond.Broadcast()
 				mu.Unlock()
+				if c != nil || sh.copied.Load() {
+					// The grid holds a second copy of X (the design's
+					// columns, or the centred rows) for all its fits:
+					// the collector, pacing from twice the live heap,
+					// would let the fits' garbage pass a third X before
+					// collecting. Collect what this fit left (the fits
+					// waiting for it already free to start): no more
+					// CPU, the big arrays hold no pointers to mark.
+					runtime.GC()
+				}
 				done(i, res, err)
 			}
 		}()

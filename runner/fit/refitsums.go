@@ -124,7 +124,7 @@ func (p *problem) extendSums(theta []float64, expected bool, b *acc) *acc {
 		if s == nil {
 			s = p.newScratch()
 		}
-		pa := p.newAcc(2)
+		pa := p.blockAcc(2)
 		p.indicatorBlock(c, lo, hi, expected, pa, s)
 		parts[bi] = pa
 		p.scratch.Put(s)
@@ -144,6 +144,9 @@ func (p *problem) extendSums(theta []float64, expected bool, b *acc) *acc {
 			addTo(r, pr)
 			addTo(t, pt)
 		}
+	}
+	for _, pa := range parts {
+		p.parts[2].Put(pa)
 	}
 	mirrorLower(a.T, kp)
 	return a
