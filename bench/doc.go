@@ -10,7 +10,11 @@
 //	                                           # new file (-out refuses one that exists): copy its
 //	                                           # sections into bench/README.md by hand
 //	go run ./bench -smoke                      # a small variant for CI
-//	go run ./bench -only targets               # the fitting engine's speed targets only
+//	go run ./bench -only targets               # the fitting engine's speed targets only (with the
+//	                                           # peak memory of two single fits and of the 13-model
+//	                                           # grid, each in a fresh process)
+//	go run ./bench -only grid                  # the 13-model grid: each model alone, then all
+//	                                           # through fit.FitGrid, with the grid's peak heap / X
 //	go run ./bench -only ingest                # reading data only: CSV (three dialects) and
 //	                                           # Parquet, 1e6 rows x 10 predictors, each reading in
 //	                                           # a fresh process: seconds, CPU, MB/s against the

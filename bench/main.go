@@ -22,7 +22,7 @@ import (
 func main() {
 	out := flag.String("out", "", "write the Markdown report to this new file (default: stdout); an existing file is refused, so that bench/README.md's hand-written history is never overwritten: copy the sections into it by hand")
 	smoke := flag.Bool("smoke", false, "small sizes only (CI smoke test)")
-	only := flag.String("only", "", "run one part only: ingest (reading data files), targets (the fitting engine's speed targets, the table of bench/README.md's first section), iteration (the targets' rows of one Newton iteration against one X'WX plus one kernel pass) or grid (the targets' grid row with every model's time and passes over the data, at -targets-grid-rows)")
+	only := flag.String("only", "", "run one part only: ingest (reading data files), targets (the fitting engine's speed targets, the table of bench/README.md's first section), iteration (the targets' rows of one Newton iteration against one X'WX plus one kernel pass) or grid (the targets' grid row with every model's time and passes over the data, and the grid's peak heap / X, at -targets-grid-rows)")
 	ingestRows := flag.Int("ingest-rows", 1_000_000, "rows of the files the ingest part reads")
 	ingestRepeats := flag.Int("ingest-repeats", 5, "readings of each file by each reader")
 	child := flag.String("ingest-child", "", "(internal) read this file once and print what was measured")
