@@ -42,6 +42,14 @@ type shared struct {
 	copied atomic.Bool
 }
 
+// collectAbove is the size of X, bytes, from which a grid holding a
+// second copy of it collects after each fit (FitGrid): below it the
+// memory at stake is a few megabytes, while a collection per fit costs
+// wall time that many small grids (selection_stability's resamples, at
+// some thousands of rows each) would add up: 14% on the example plan
+// with 40 resamples.
+const collectAbove = 32 << 20
+
 // gridFit is a finished fit as a later fit may read it.
 type gridFit struct {
 	res *Result
@@ -252,7 +260,7 @@ func FitGrid(d *Data, models []Model, opt Options, workers int, done func(i int,
 				}
 				cond.Broadcast()
 				mu.Unlock()
-				if c != nil || sh.copied.Load() {
+				if (c != nil || sh.copied.Load()) && 8*d.N()*d.width() >= collectAbove {
 					// The grid holds a second copy of X (the design's
 					// columns, or the centred rows) for all its fits:
 					// the collector, pacing from twice the live heap,
