@@ -2,6 +2,7 @@ package fit
 
 import (
 	"math"
+	"math/big"
 
 	"ordplan/internal/words"
 )
@@ -168,12 +169,56 @@ var logLog2 = math.Log(math.Ln2)
 // from u = log 2 on, so that log F keeps its digits where F nears 1); u =
 // 0 (F then u to the last digit) gives log F = z, e and F unset.
 func cloglogLower(z float64) (u, e, F, v float64) {
-	u = fastExp(z)
+	return cloglogLowerAt(z, fastExp(z))
+}
+
+// cloglogLowerAt is cloglogLower with u = fastExp(z) at hand.
+func cloglogLowerAt(z, u float64) (_, e, F, v float64) {
 	if u == 0 {
 		return 0, 0, 0, z
 	}
 	m, e := expm1Exp(-u)
 	return u, e, -m, log1mexpOf(-u, m, e)
+}
+
+// psiSmallTerms holds, for n = 1..11, c_n = 2^2n B_2n / (2n (2n)!) and
+// c_n times 2n and (2n)^2 (B_2n the Bernoulli numbers): log(sinh x / x)
+// = sum c_n x^2n, and its x d/dx and (x d/dx)^2. At x = 1/4 the terms
+// fall by (x/pi)^2 = 1/158 each; the eleventh is below 1e-22.
+var psiSmallTerms = func() (c [11][3]float64) {
+	b := []string{"1/6", "-1/30", "1/42", "-1/30", "5/66", "-691/2730", "7/6",
+		"-3617/510", "43867/798", "-174611/330", "854513/138"}
+	fact := big.NewInt(1)
+	for i := range c {
+		n := int64(i + 1)
+		fact.Mul(fact, big.NewInt((2*n-1)*(2*n)))
+		r, _ := new(big.Rat).SetString(b[i])
+		r.Mul(r, new(big.Rat).SetInt(new(big.Int).Lsh(big.NewInt(1), uint(2*n))))
+		r.Quo(r, new(big.Rat).SetInt(new(big.Int).Mul(fact, big.NewInt(2*n))))
+		for k := range c[i] {
+			c[i][k], _ = r.Float64()
+			r.Mul(r, new(big.Rat).SetInt64(2*n))
+		}
+	}
+	return c
+}()
+
+// cloglogRatioSmall is Link.ratio's cloglog psi = log(e^u - 1) and its
+// two derivatives in z for u = e^z below 1/2, by series in x = u/2
+// without an exponential of u or a logarithm: e^u - 1 = u e^x sinh(x)/x,
+// so psi = z + x + L(x) with L = log(sinh x / x), psi' = 1 + x + x L'(x)
+// and psi” = x + x (x L')'(x) (d/dz = u d/du = x d/dx).
+func cloglogRatioSmall(z, u float64) (v, d1, d2 float64) {
+	x := u / 2
+	w := x * x
+	c := &psiSmallTerms
+	s0, s1, s2 := c[len(c)-1][0], c[len(c)-1][1], c[len(c)-1][2]
+	for n := len(c) - 2; n >= 0; n-- {
+		s0 = c[n][0] + w*s0
+		s1 = c[n][1] + w*s1
+		s2 = c[n][2] + w*s2
+	}
+	return z + (x + w*s0), 1 + (x + w*s1), x + w*s2
 }
 
 // cloglogBetween is kernel.between for the cloglog and loglog links
@@ -233,7 +278,8 @@ func cloglogBetween(l Link, a, b float64, derivs bool) (m middle, done bool) {
 //
 // Cloglog: u = e^z, F = 1 - e^-u (cloglogLower), psi = log F + u; its first derivative
 // u/F (lower's a = u e^-u / F plus upper's u), its second u - a bend(u)
-// u/F (lower's second derivative, see lower, plus upper's u).
+// u/F (lower's second derivative, see lower, plus upper's u). Below u = 1/2
+// all three from series in u instead (cloglogRatioSmall).
 func (l Link) ratio(z float64) (v, d1, d2 float64, ok bool) {
 	switch l {
 	case Probit:
@@ -255,10 +301,15 @@ func (l Link) ratio(z float64) (v, d1, d2 float64, ok bool) {
 		lp, lq := phi/P, phi/Q
 		return fastLog(P / Q), lp + lq, lq*(lq-z) - lp*(z+lp), true
 	case Cloglog:
-		u, e, F, lf := cloglogLower(z)
+		u := fastExp(z)
 		if !(u >= 1e-300 && u <= 700) {
 			return 0, 0, 0, false
 		}
+		if u < 0.5 {
+			v, d1, d2 := cloglogRatioSmall(z, u)
+			return v, d1, d2, true
+		}
+		_, e, F, lf := cloglogLowerAt(z, u)
 		a := u * e / F
 		r := u / F
 		return lf + u, r, u - a*bendOf(u, F)*r, true
