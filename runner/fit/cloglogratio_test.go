@@ -11,7 +11,7 @@ import (
 // u = e^z, and its two derivatives in z against math/big (normtail_test.go's
 // bigExpNeg and bigLog at 400 bits; psi = z + log((e^u - 1)/u), psi' =
 // u/(1 - e^-u), psi” = psi' (e^u - 1 - u)/(e^u - 1)) from e^z of 1e-300 up to
-// past the switch to the tails' formulas at u = 1/2, where the series in
+// past the switch to the tails' formulas at u = 1, where the series in
 // u (cloglogRatioSmall) takes over, and the loglog's as its mirror image.
 // Tolerances: 4e-16 (|psi| + psi') for psi and 4e-16 (psi' + psi”) for
 // psi' (u's rounding times the derivative, plus psi's own), 1e-15 |psi”|
@@ -33,8 +33,8 @@ func TestCloglogRatioSmallBig(t *testing.T) {
 	for i := -690 * 4; i <= 4; i++ {
 		zs = append(zs, float64(i)/4)
 	}
-	sw := math.Log(0.5)
-	for _, z := range []float64{sw, math.Log(1e-300), -1e-8, 1e-8, -0.3, -0.5} {
+	sw := 0.0 // u = 1
+	for _, z := range []float64{sw, math.Log(1e-300), -1e-8, 1e-8, -0.3, -0.5, math.Log(0.5)} {
 		zs = append(zs, z, math.Nextafter(z, -1), math.Nextafter(z, 1),
 			math.Nextafter(math.Nextafter(z, -1), -1), math.Nextafter(math.Nextafter(z, 1), 1))
 	}
@@ -52,7 +52,7 @@ func TestCloglogRatioSmallBig(t *testing.T) {
 			}
 			continue
 		}
-		if fastExp(z) < 0.5 {
+		if fastExp(z) < 1 {
 			small++
 		}
 		lv, ld1, ld2, lok := Loglog.ratio(-z)
@@ -102,6 +102,6 @@ func TestCloglogRatioSmallBig(t *testing.T) {
 	if small < 1000 {
 		t.Fatalf("only %d points below the switch", small)
 	}
-	t.Logf("%d points, %d below u = 1/2; largest errors (of tolerance): psi %.3g at z = %s, psi' %.3g at %s, psi'' %.3g at %s",
+	t.Logf("%d points, %d below u = 1; largest errors (of tolerance): psi %.3g at z = %s, psi' %.3g at %s, psi'' %.3g at %s",
 		len(zs), small, worst[0], worstAt[0], worst[1], worstAt[1], worst[2], worstAt[2])
 }
