@@ -111,14 +111,24 @@ type categoryAxis struct {
 	maxWidth float64  // the most a turned label takes
 	left     string   // the plot's left margin while labels stand upright
 	turns    []float64
+	// phoneSize and phoneTurns, if given, are the font size and the
+	// angles tried in a chart narrower than chartNarrow, where many
+	// labels turned as in a wider chart would crowd (the library then
+	// thins them out) and reach far to the left of the plot.
+	phoneSize  float64
+	phoneTurns []float64
 }
 
 // at is the axis's labels and their layout in a text width of width
 // pixels.
 func (a *categoryAxis) at(width float64) ([]string, categoryLabels) {
-	l := layoutCategories(a.names, a.size, width-a.margin, a.maxWidth, a.turns...)
+	size, turns := a.size, a.turns
+	if width < chartTextWidth && a.phoneTurns != nil {
+		size, turns = a.phoneSize, a.phoneTurns
+	}
+	l := layoutCategories(a.names, size, width-a.margin, a.maxWidth, turns...)
 	if l.rotate != 0 && a.turned != nil {
-		return a.turned, layoutCategories(a.turned, a.size, width-a.margin, a.maxWidth, a.turns...)
+		return a.turned, layoutCategories(a.turned, size, width-a.margin, a.maxWidth, turns...)
 	}
 	return a.names, l
 }
@@ -133,6 +143,7 @@ type narrowXAxis struct {
 
 type narrowLabel struct {
 	Rotate   float64 `json:"rotate"`
+	FontSize int     `json:"fontSize"`
 	Interval any     `json:"interval"` // 0 or "auto"
 	Width    int     `json:"width,omitempty"`
 	Overflow string  `json:"overflow"`
@@ -142,7 +153,7 @@ type narrowLabel struct {
 // xAxisOf is the narrow option's x axis for these labels and layout.
 func (a *categoryAxis) xAxisOf(names []string, l categoryLabels) *[1]narrowXAxis {
 	x := narrowXAxis{Data: names, NameGap: int(l.extent) + 7,
-		AxisLabel: narrowLabel{Rotate: l.rotate, Interval: "auto", Overflow: "none", Ellipsis: ellipsis}}
+		AxisLabel: narrowLabel{Rotate: l.rotate, FontSize: int(l.size), Interval: "auto", Overflow: "none", Ellipsis: ellipsis}}
 	if l.interval == "0" {
 		x.AxisLabel.Interval = 0
 	}
@@ -424,7 +435,7 @@ func (fr *chartFrame) opts() []charts.GlobalOpts {
 	}
 	if a := fr.xCategories; a != nil {
 		out = append(out, charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: a.name, NameLocation: "middle", NameGap: int(wl.xLabels.extent) + 7,
-			AxisLabel: wl.xLabels.axisLabel(int(a.size))}))
+			AxisLabel: wl.xLabels.axisLabel(int(wl.xLabels.size))}))
 	}
 	return out
 }

@@ -78,15 +78,21 @@ func criteriaChart(d *doc, or *runner.OutcomeResult, sampling bool) *chart {
 	}
 	// The model names turn when they crowd the axis; the first one's
 	// reach to the left sets the left margin. The bottom margin holds the
-	// legend some 22 pixels below the turned names.
-	labels := layoutCategories(names, 11, chartTextWidth-60, 240)
-	fr := d.frame(chartFrame{title: "Information criteria of the candidate models", subtitle: or.Outcome.Label, height: 426,
-		grid: opts.Grid{Left: leftFor(labels, "4%"), Right: "4%", Top: "70", Bottom: "36"}, legend: legend})
+	// legend some 22 pixels below the turned names. On a phone the chart
+	// is narrower: the names stand straight up, a little smaller, each
+	// in its own slot (turned 30 degrees, the library thinned them out and
+	// the first reached far to the left of the plot), and the chart grows
+	// by their length, so that the plot keeps its size.
+	axis := &categoryAxis{names: names, size: 11, margin: 60, maxWidth: 240, left: "4%", turns: []float64{30},
+		phoneSize: 10, phoneTurns: []float64{90}}
+	_, usual := axis.at(chartTextWidth)
+	fr := d.frame(chartFrame{title: "Information criteria of the candidate models", subtitle: or.Outcome.Label,
+		height: 426 - int(usual.extent-usual.upright(axis.size)),
+		grid:   opts.Grid{Right: "4%", Top: "70", Bottom: "36"}, legend: legend, xCategories: axis})
 	s := charts.NewScatter()
 	s.SetGlobalOptions(append(fr.opts(),
-		charts.WithXAxisOpts(opts.XAxis{Type: "category", AxisLabel: labels.axisLabel(11)}),
 		charts.WithYAxisOpts(opts.YAxis{Name: "criterion", Type: "value", Scale: opts.Bool(true)}))...)
-	s.SetXAxis(names)
+	s.SetXAxis(fr.xNames)
 	s.AddSeries("AIC", aic, charts.WithItemStyleOpts(opts.ItemStyle{Color: colorEstimate}))
 	s.AddSeries("BIC", bic, charts.WithItemStyleOpts(opts.ItemStyle{Color: colorParallel}))
 	// Entries of the legend alone: series without points, in grey, whose

@@ -255,6 +255,7 @@ type categoryLabels struct {
 	interval string  // "0": every label; "": the library's choice
 	extent   float64 // pixels from the axis line to the labels' far edge
 	overhang float64 // pixels the first label reaches left of its tick
+	size     float64 // the labels' font size
 }
 
 func layoutCategories(names []string, size, axisWidth, maxWidth float64, turns ...float64) categoryLabels {
@@ -277,7 +278,7 @@ func layoutCategories(names []string, size, axisWidth, maxWidth float64, turns .
 	slot := axisWidth / float64(max(len(names), 1))
 	lineH := 1.3 * size * float64(lines)
 	if widest <= slot-2 {
-		return categoryLabels{interval: "0", extent: lineH + 8, overhang: lineWidth(names[0]) / 2}
+		return categoryLabels{interval: "0", extent: lineH + 8, overhang: lineWidth(names[0]) / 2, size: size}
 	}
 	w := min(widest, maxWidth)
 	first := min(lineWidth(names[0]), maxWidth)
@@ -286,7 +287,7 @@ func layoutCategories(names []string, size, axisWidth, maxWidth float64, turns .
 		th := deg * math.Pi / 180
 		l = categoryLabels{rotate: deg, width: maxWidth, interval: "0",
 			extent:   8 + w*math.Sin(th) + lineH*math.Cos(th),
-			overhang: first*math.Cos(th) + lineH*math.Sin(th)/2}
+			overhang: first*math.Cos(th) + lineH*math.Sin(th)/2, size: size}
 		if slot*math.Sin(th) >= lineH+2 {
 			break
 		}
