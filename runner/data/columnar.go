@@ -12,6 +12,7 @@ import (
 	"strings"
 
 	"github.com/parquet-go/parquet-go"
+	parquetformat "github.com/parquet-go/parquet-go/format"
 )
 
 // IsParquet reports whether a data file is read as Parquet (by its name).
@@ -61,13 +62,21 @@ func openParquet(raw []byte) (rec *columnRecords, msg string, format bool) {
 	}
 	cols := f.Schema().Columns()
 	rec = &columnRecords{}
+	// The logical types as the file's metadata states them, by column
+	// name: the schema read back leaves some out (FLOAT16).
+	stated := map[string]*parquetformat.LogicalType{}
+	for i := range f.Metadata().Schema {
+		if e := &f.Metadata().Schema[i]; e.LogicalType.Value != nil {
+			stated[e.Name] = &e.LogicalType
+		}
+	}
 	for _, path := range cols {
 		if len(path) != 1 {
 			return nil, fmt.Sprintf("column %s is nested; only flat Parquet files (one value per column and row) are read", quoteCell(strings.Join(path, "."))), false
 		}
 		rec.header = append(rec.header, path[0])
 		leaf, _ := f.Schema().Lookup(path...)
-		rec.texts = append(rec.texts, logicalText(leaf.Node.Type()))
+		rec.texts = append(rec.texts, logicalText(leaf.Node.Type(), stated[path[0]]))
 	}
 	rec.file, rec.mark = f, '.'
 	rec.rd = parquet.NewReader(f)

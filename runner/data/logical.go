@@ -2,6 +2,7 @@ package data
 
 import (
 	"fmt"
+	"math"
 	"math/big"
 	"strconv"
 	"strings"
@@ -16,19 +17,28 @@ import (
 // mark given.
 type columnText func(v parquet.Value, mark byte) string
 
-// logicalText is the text of the values of a column of type t, or nil
+// logicalText is the text of the values of a column of type t (whose
+// logical type, when t has none, is the one the file's metadata states),
+// or nil
 // when the stored value is what it means (cellText): a decimal is its
 // unscaled integer with the point put back (exactly, as the file means
 // it: 12345 at scale 2 is 123.45), an unsigned integer is read unsigned,
 // a date, time or timestamp (and a legacy INT96 timestamp) is written as
 // such, a text a number cannot be read from, so that such a column used
 // as a number is refused with its value shown, as the same data written
-// as CSV would be.
-func logicalText(t parquet.Type) columnText {
+// as CSV would be; a half-precision float (FLOAT16, two bytes) is written
+// as the float64 it is exactly, as a FLOAT is (cellText), not as its two
+// bytes.
+func logicalText(t parquet.Type, stated *format.LogicalType) columnText {
 	if t.Kind() == parquet.Int96 {
 		return int96Text
 	}
 	lt := t.LogicalType()
+	if lt == nil {
+		// A logical type the file states that the schema as read
+		// leaves out.
+		lt = stated
+	}
 	if lt == nil {
 		return nil
 	}
@@ -46,6 +56,8 @@ func logicalText(t parquet.Type) columnText {
 			}
 			return strconv.FormatUint(v.Uint64(), 10)
 		}
+	case *format.Float16Type:
+		return func(v parquet.Value, mark byte) string { return fmtNum(halfFloat(v.ByteArray()), mark) }
 	case *format.DateType:
 		return func(v parquet.Value, _ byte) string {
 			return time.Unix(int64(v.Int32())*86400, 0).UTC().Format("2006-01-02")
@@ -67,6 +79,34 @@ func logicalText(t parquet.Type) columnText {
 		}
 	}
 	return nil
+}
+
+// halfFloat is the value of an IEEE 754 half-precision float stored as
+// Parquet's FLOAT16 stores it, two bytes, little-endian: exactly, as
+// every half-precision value is a float64 (NaN for a value that is not
+// two bytes long).
+func halfFloat(b []byte) float64 {
+	if len(b) != 2 {
+		return math.NaN()
+	}
+	h := uint16(b[0]) | uint16(b[1])<<8
+	exp, frac := int(h>>10&0x1f), float64(h&0x3ff)
+	var x float64
+	switch exp {
+	case 0: // zero and subnormals
+		x = math.Ldexp(frac, -24)
+	case 0x1f:
+		if frac != 0 {
+			return math.NaN()
+		}
+		x = math.Inf(1)
+	default:
+		x = math.Ldexp(1024+frac, exp-25)
+	}
+	if h&0x8000 != 0 {
+		x = -x
+	}
+	return x
 }
 
 // storedInt is the value of an INT32 or INT64.

@@ -2,6 +2,7 @@ package data
 
 import (
 	"bytes"
+	"math"
 	"math/big"
 	"strconv"
 	"strings"
@@ -9,6 +10,7 @@ import (
 
 	"github.com/parquet-go/parquet-go"
 	"github.com/parquet-go/parquet-go/deprecated"
+	"github.com/parquet-go/parquet-go/format"
 )
 
 // logicalRows are the rows of typedParquet: each column's stored value
@@ -183,5 +185,78 @@ func TestDateUsedAsNumber(t *testing.T) {
 		if err == nil || err.Error() != `t.csv:3: column "a": `+want {
 			t.Errorf("%s: %v\nwant %s", cell, err, want)
 		}
+	}
+}
+
+// halfType is a two-byte FIXED_LEN_BYTE_ARRAY carrying the FLOAT16
+// logical type, as writers of half-precision columns store them (the
+// library writes the type to the file but reads it back without it).
+type halfType struct{ parquet.Type }
+
+func (halfType) LogicalType() *format.LogicalType {
+	return &format.LogicalType{Value: &format.Float16Type{}}
+}
+
+// halfParquet writes a Parquet file of an outcome y and a FLOAT16
+// column h holding the bit patterns given (little-endian, as the format
+// stores them).
+func halfParquet(t *testing.T, bits []uint16) []byte {
+	t.Helper()
+	schema := parquet.NewSchema("rows", parquet.Group{
+		"y": parquet.String(),
+		"h": parquet.Leaf(halfType{parquet.FixedLenByteArrayType(2)}),
+	})
+	var buf bytes.Buffer
+	w := parquet.NewWriter(&buf, schema)
+	for i, b := range bits {
+		vals := map[string]parquet.Value{
+			"y": parquet.ByteArrayValue([]byte([]string{"a", "b"}[i%2])),
+			"h": parquet.FixedLenByteArrayValue([]byte{byte(b), byte(b >> 8)}),
+		}
+		var row parquet.Row
+		for ci, path := range schema.Columns() {
+			row = append(row, vals[path[0]].Level(0, 0, ci))
+		}
+		if _, err := w.WriteRows([]parquet.Row{row}); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if err := w.Close(); err != nil {
+		t.Fatal(err)
+	}
+	return buf.Bytes()
+}
+
+// A Parquet FLOAT16 column is read as the numbers it holds: it was read
+// as its two bytes, text that no column takes as a number ("value
+// \"\\x00<\" is not a number; the column holds text"). The values are
+// those of the IEEE 754-2008 binary16 format for these bit patterns:
+// 1, -2, the largest finite 65504, the smallest normal 2^-14, the
+// smallest subnormal 2^-24, 1/3 rounded (0x3555 = 0.333251953125), and
+// -0; a NaN is a missing value, as a NaN double is, and infinity is
+// refused as a double's is.
+func TestParquetFloat16(t *testing.T) {
+	bits := []uint16{0x3c00, 0xc000, 0x7bff, 0x0400, 0x0001, 0x3555, 0x8000, 0x7e00}
+	want := []float64{1, -2, 65504, 6.103515625e-05, 5.9604644775390625e-08, 0.333251953125, 0}
+	for _, comma := range []bool{false, true} {
+		d, err := readBytes(halfParquet(t, bits), "h.parquet", Options{Outcome: "y", Categories: []string{"a", "b"}, Predictors: []string{"h"}, Dialect: Dialect{DecimalComma: comma}})
+		if err != nil {
+			t.Fatalf("decimal comma %v: %v", comma, err)
+		}
+		if len(d.X) != len(want) || d.RowsDropped != 1 {
+			t.Fatalf("decimal comma %v: %d values, %d rows dropped; want %d values, the NaN's row dropped", comma, len(d.X), d.RowsDropped, len(want))
+		}
+		for i, w := range want {
+			if d.X[i] != w {
+				t.Errorf("decimal comma %v, row %d (bits %#04x): %v, want %v", comma, i+1, bits[i], d.X[i], w)
+			}
+		}
+		if !math.Signbit(d.X[6]) {
+			t.Errorf("0x8000 read as %v, want -0", d.X[6])
+		}
+	}
+	_, err := readBytes(halfParquet(t, []uint16{0x3c00, 0xfc00}), "h.parquet", Options{Outcome: "y", Categories: []string{"a", "b"}, Predictors: []string{"h"}})
+	if err == nil || !strings.Contains(err.Error(), `h.parquet:3: column "h": value "-Inf" is infinite`) {
+		t.Errorf("a FLOAT16 infinity: %v", err)
 	}
 }
