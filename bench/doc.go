@@ -15,6 +15,10 @@
 //	                                           # grid, each in a fresh process)
 //	go run ./bench -only grid                  # the 13-model grid: each model alone, then all
 //	                                           # through fit.FitGrid, with the grid's peak heap / X
+//	go run ./bench -only links                 # single fits at n = 1e6 (K = 10, J = 5) of the three
+//	                                           # comparisons, parallel and nonparallel, under every
+//	                                           # link: CPU seconds and passes over the data against
+//	                                           # the logit's of the same run (-links-repeats runs each)
 //	go run ./bench -only ingest                # reading data only: CSV (three dialects) and
 //	                                           # Parquet, 1e6 rows x 10 predictors, each reading in
 //	                                           # a fresh process: seconds, CPU, MB/s against the

@@ -22,7 +22,7 @@ import (
 func main() {
 	out := flag.String("out", "", "write the Markdown report to this new file (default: stdout); an existing file is refused, so that bench/README.md's hand-written history is never overwritten: copy the sections into it by hand")
 	smoke := flag.Bool("smoke", false, "small sizes only (CI smoke test)")
-	only := flag.String("only", "", "run one part only: ingest (reading data files), targets (the fitting engine's speed targets, the table of bench/README.md's first section), iteration (the targets' rows of one Newton iteration against one X'WX plus one kernel pass) or grid (the targets' grid row with every model's time and passes over the data, and the grid's peak heap / X, at -targets-grid-rows)")
+	only := flag.String("only", "", "run one part only: ingest (reading data files), targets (the fitting engine's speed targets, the table of bench/README.md's first section), iteration (the targets' rows of one Newton iteration against one X'WX plus one kernel pass), links (single fits of the three comparisons, parallel and nonparallel, under every link: CPU seconds and passes over the data against the logit's, at -targets-rows) or grid (the targets' grid row with every model's time and passes over the data, and the grid's peak heap / X, at -targets-grid-rows)")
 	ingestRows := flag.Int("ingest-rows", 1_000_000, "rows of the files the ingest part reads")
 	ingestRepeats := flag.Int("ingest-repeats", 5, "readings of each file by each reader")
 	child := flag.String("ingest-child", "", "(internal) read this file once and print what was measured")
@@ -33,6 +33,7 @@ func main() {
 	speedRows := flag.Int("targets-rows", 1_000_000, "rows of the data of -only targets")
 	speedGrid := flag.Int("targets-grid-rows", 1_000_000, "rows of the data of the grid in -only targets")
 	speedRepeats := flag.Int("targets-repeats", 3, "runs of each timing of -only targets (best and median reported)")
+	linksRepeats := flag.Int("links-repeats", 2, "runs of each fit of -only links (the best reported)")
 	memChild := flag.String("memory-child", "", "(internal) fit this model (binary, cumulative/nonparallel, or grid: the 13-model grid through fit.FitGrid) in this process and print its peak memory")
 	memRows := flag.Int("memory-rows", 1_000_000, "(internal) rows of -memory-child")
 	writeOnly := flag.String("write-csv", "", "write the CSV that -only targets times `ordplan fit` on (-targets-rows rows, 10 predictors, two categories) to this file and stop")
@@ -89,6 +90,10 @@ func main() {
 	}
 	if *only == "iteration" {
 		iterationReport(w, *speedRows, *speedRepeats)
+		return
+	}
+	if *only == "links" {
+		linksReport(w, *speedRows, *linksRepeats)
 		return
 	}
 	if *only == "targets" {
