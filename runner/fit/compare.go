@@ -425,9 +425,18 @@ func adjacentLogit(L []float64, c int, g, h []float64) (float64, bool) {
 	return lp, true
 }
 
-// clampHuge keeps x within +-1e300.
+// clampHuge keeps x within +-1e300 (NaN and signed zeros as they are,
+// as math.Max(-1e300, math.Min(1e300, x)) would give them, without
+// that pair's special cases: the adjacent kernels clamp three values a
+// row and equation).
 func clampHuge(x float64) float64 {
-	return math.Max(-1e300, math.Min(1e300, x))
+	if x > 1e300 {
+		return 1e300
+	}
+	if x < -1e300 {
+		return -1e300
+	}
+	return x
 }
 
 // mulZero is a*b with 0 times anything (even a huge value) equal to 0: a

@@ -92,11 +92,11 @@ func atMarginalCutpoints(tb testing.TB, d *Data, m Model) (*problem, []float64) 
 
 // BenchmarkAdjacentLinkKernels is BenchmarkBlockKernels for the adjacent
 // comparison (J = 5, parallel effects, K = 10) under the logit, probit,
-// cloglog and loglog links: CPU ns per block of 4096 rows with derivatives
-// of both orders (the last three form each equation's log-odds with
-// Link.ratio).
+// cloglog, loglog and cauchy links: CPU ns per block of 4096 rows with
+// derivatives of both orders (the last four form each equation's log-odds
+// with Link.ratio).
 func BenchmarkAdjacentLinkKernels(b *testing.B) {
-	benchLinkKernels(b, Adjacent, []Link{Logit, Probit, Cloglog, Loglog})
+	benchLinkKernels(b, Adjacent, []Link{Logit, Probit, Cloglog, Loglog, Cauchy})
 }
 
 // BenchmarkCumulativeLinkKernels is BenchmarkAdjacentLinkKernels for the

@@ -298,16 +298,20 @@ func TestLinkTailsShared(t *testing.T) {
 // upper(z), over the grid: the value and first derivative within 2e-15 of max(1, |x|),
 // the second within 2e-15 (1 + z^2) of it (far in the probit's tails the
 // second derivative is a difference of terms about z^2 apart in size, in
-// either form); and ok exactly where the fast ranges hold. (The finite
+// either form); for the cauchy link (the table's two tails) bit for bit
+// the same as lower(z) - upper(z); and ok exactly where the fast ranges
+// hold. (The finite
 // differences of TestScoreAndInformationFiniteDifferences and the R
 // cross-check's binary glm, which the adjacent model with two categories
 // equals, check the derivatives and the values against outside sources.)
 func TestLinkRatio(t *testing.T) {
-	for _, l := range []Link{Probit, Cloglog, Loglog} {
+	for _, l := range []Link{Probit, Cloglog, Loglog, Cauchy} {
 		for _, z := range logitGrid() {
 			v, d1, d2, ok := l.ratio(z)
 			want := math.Abs(z) <= 30
 			switch l {
+			case Cauchy:
+				want = math.Abs(z) <= cauchyFast
 			case Cloglog:
 				u := fastExp(z)
 				want = u >= 1e-300 && u <= 700
@@ -322,6 +326,12 @@ func TestLinkRatio(t *testing.T) {
 				continue
 			}
 			lo, up := l.lower(z), l.upper(z)
+			if l == Cauchy {
+				if v != lo.v-up.v || d1 != lo.d1-up.d1 || d2 != lo.d2-up.d2 {
+					t.Errorf("cauchy ratio(%g) = %v, %v, %v; from the two tails %v, %v, %v", z, v, d1, d2, lo.v-up.v, lo.d1-up.d1, lo.d2-up.d2)
+				}
+				continue
+			}
 			for i, c := range []struct{ got, want, tol float64 }{
 				{v, lo.v - up.v, 2e-15},
 				{d1, lo.d1 - up.d1, 2e-15},
@@ -333,9 +343,9 @@ func TestLinkRatio(t *testing.T) {
 			}
 		}
 	}
-	for _, l := range []Link{Logit, Cauchy} {
+	for _, l := range []Link{Logit} {
 		if _, _, _, ok := l.ratio(0.5); ok {
-			t.Errorf("%s: ratio is formed for the probit, cloglog and loglog links only", l)
+			t.Errorf("%s: ratio is formed for the probit, cloglog, loglog and cauchy links only", l)
 		}
 	}
 }
