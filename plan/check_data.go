@@ -236,7 +236,7 @@ func (d *decoder) dataHeader(p *Plan) ([]string, bool) {
 // at the key that names it.
 func (d *decoder) checkHeader(p *Plan, header []string) {
 	missing := func(key, col string) {
-		if col == "" || !d.clean(key) || slices.Contains(header, col) {
+		if col == "" || !d.clean(key) || data.HasColumn(header, col) {
 			return
 		}
 		d.errAt(key, "column %s is not in the data file %s%s", quote(col), p.Data.Name(), columnHint(col, header))

@@ -1809,6 +1809,26 @@ func catalogue(dir string) (items []badInput) {
 					}
 				}
 			}},
+		{id: "D53", name: "a column name in another Unicode form than the plan's", args: []string{"check"},
+			setup: func(t *testing.T, dir, id string) {
+				withColumns(t, dir, "nfdhead.csv", "gro\u0308\u00dfe", func(i int, f []string) string { return f[1] })
+			},
+			plan: edit("  file: d.csv\n", "  file: nfdhead.csv\n", "predictors: [a, b]", "predictors: [größe, b]"), code: 0,
+			check: func(t *testing.T, dir, out, errs string) {
+				// It said: column "größe" is not in the data file
+				// nfdhead.csv; its columns are ..., "größe".
+				if strings.Contains(out+errs, "is not in the data file") {
+					t.Errorf("check refused the column:\n%s%s", out, errs)
+				}
+				if o, e, code := runCLI(fitArgs(filepath.Join(dir, "nfdhead.csv"), "--predictors", "größe,b")...); code != 0 || !strings.Contains(o, "größe") {
+					t.Errorf("fit: exit %d\n%s%s", code, o, e)
+				}
+			}},
+		{id: "D53", name: "two column names that are one name in two Unicode forms", args: fitArgs(d("twoforms.csv"), "--predictors", "a"), code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				withColumns(t, dir, "twoforms.csv", "gr\u00f6\u00dfe,gro\u0308\u00dfe", func(i int, f []string) string { return f[1] + "," + f[2] })
+			},
+			want: []string{"ordplan: twoforms.csv:1: header: column names \"gr\u00f6\u00dfe\" (column 8) and \"gro\u0308\u00dfe\" (column 9) are one name written in two Unicode forms (one with composed letters, one with letters and combining accents), which a plan cannot tell apart: rename one\n"}},
 		{id: "D32", name: "missing values in a column the subset reads, with imputation", args: []string{"run"}, setup: subsetAges,
 			plan: edit("  file: d.csv\n", "  file: subna.csv\n  missing: impute\n  missing_values: [\"NA\", \"-9\"]\n", "[a, b]", "[a, b, age]") + "subset:\n  - {column: age, at_least: 18}\n", code: 0,
 			check: func(t *testing.T, dir, out, errs string) {

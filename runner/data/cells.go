@@ -25,7 +25,7 @@ func ColumnCells(path string, d Dialect, column string, each func(line int, cell
 	if err != nil {
 		return err
 	}
-	col, ok := where[column]
+	col, ok := where[ColumnKey(column)]
 	if !ok {
 		return r.fail(0, column, "%s", notInHeader("", column, names))
 	}

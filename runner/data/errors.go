@@ -7,6 +7,8 @@ import (
 	"strings"
 	"unicode"
 	"unicode/utf8"
+
+	"golang.org/x/text/unicode/norm"
 )
 
 // ErrEmptyFile, ErrNotRegular, ErrFileFormat and ErrNoRows are the Err of
@@ -96,6 +98,31 @@ func quoteList(names []string) string {
 		q = append(q, fmt.Sprintf("... (%d in all)", len(names)))
 	}
 	return strings.Join(q, ", ")
+}
+
+// ColumnKey is a column name as a header's names and the names a plan or
+// a flag gives are compared: a name beyond ASCII in its composed Unicode
+// form (NFC), so that "café" typed with one code point for the é names
+// the column a file heads with an "e" and a combining accent, as some
+// systems write (declared levels match cells alike: textKey); no other
+// folding, so that TRUE and true, or a and A, are two names. Names are
+// printed as written.
+func ColumnKey(name string) string {
+	if isASCII(name) {
+		return name
+	}
+	return norm.NFC.String(name)
+}
+
+// HasColumn reports whether header holds the column col (ColumnKey).
+func HasColumn(header []string, col string) bool {
+	k := ColumnKey(col)
+	for _, h := range header {
+		if ColumnKey(h) == k {
+			return true
+		}
+	}
+	return false
 }
 
 // NearColumn gives the first of header that differs from col only in

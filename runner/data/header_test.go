@@ -126,3 +126,44 @@ func TestHeaderRepeated(t *testing.T) {
 		t.Errorf("a line repeating two of three names: %v", err)
 	}
 }
+
+// A column is found by its name in either Unicode form, composed (NFC)
+// or with combining accents (NFD), as declared levels are matched: in one
+// file, and among parts whose headers write it in different forms
+// (OtherColumns sees one set of names); the data are those of the file
+// with the plan's form.
+func TestColumnNameUnicodeForms(t *testing.T) {
+	nfc, nfd := "gr\u00f6\u00dfe", "gro\u0308\u00dfe"
+	dir := t.TempDir()
+	write := func(name, head string) string {
+		p := filepath.Join(dir, name)
+		if err := os.WriteFile(p, []byte("y,"+head+"\n1,0.5\n2,1.5\n1,-1\n2,2\n"), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	a, b := write("a.csv", nfc), write("b.csv", nfd)
+	want, err := Load(a, Options{Outcome: "y", Predictors: []string{nfc}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range []struct {
+		paths []string
+		col   string
+	}{{[]string{b}, nfc}, {[]string{a}, nfd}, {[]string{a, b}, nfc}, {[]string{b, a}, nfd}} {
+		got, err := LoadFiles(c.paths, Options{Outcome: "y", Predictors: []string{c.col}})
+		if err != nil {
+			t.Errorf("%d parts, column %+q: %v", len(c.paths), c.col, err)
+			continue
+		}
+		if n := len(want.X); !reflect.DeepEqual(got.X[:n], want.X) || !reflect.DeepEqual(got.Y[:n], want.Y) {
+			t.Errorf("%d parts, column %+q: %v %v, want %v %v", len(c.paths), c.col, got.X, got.Y, want.X, want.Y)
+		}
+	}
+	if msg := OtherColumns([]string{"y", nfc}, []string{nfd, "y"}); msg != "" {
+		t.Errorf("OtherColumns: %s", msg)
+	}
+	if !HasColumn([]string{"y", nfd}, nfc) || HasColumn([]string{"Y"}, "y") || HasColumn([]string{"TRUE"}, "true") {
+		t.Error("HasColumn compares the composed forms and nothing else")
+	}
+}

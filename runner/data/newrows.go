@@ -89,7 +89,7 @@ func LoadNewRows(path string, predictors []string, levels map[string][]string, o
 	}
 	pos := make([]int, len(cols))
 	for j, c := range cols {
-		i, ok := index[c]
+		i, ok := index[ColumnKey(c)]
 		if !ok {
 			return nil, &Error{File: path, Column: c, Msg: notInHeader("", c, head)}
 		}

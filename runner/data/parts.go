@@ -237,7 +237,7 @@ func (p *partRecords) open(k int) error {
 	}
 	p.perm = make([]int, len(p.header))
 	for i, n := range p.header {
-		p.perm[i] = where[n]
+		p.perm[i] = where[ColumnKey(n)]
 	}
 	p.cur, p.next = sub, k+1
 	if p.whole != nil {
@@ -251,12 +251,12 @@ func (p *partRecords) open(k int) error {
 func OtherColumns(header, names []string) string {
 	var lack, extra []string
 	for _, h := range header {
-		if !slices.Contains(names, h) {
+		if !HasColumn(names, h) {
 			lack = append(lack, h)
 		}
 	}
 	for _, n := range names {
-		if !slices.Contains(header, n) {
+		if !HasColumn(header, n) {
 			extra = append(extra, n)
 		}
 	}

@@ -198,7 +198,7 @@ func (r *reader) header(cols []usedCol) error {
 		return err
 	}
 	for i := range cols {
-		j, ok := where[cols[i].name]
+		j, ok := where[ColumnKey(cols[i].name)]
 		if !ok {
 			// A header read whole as one name is most often a file in
 			// another dialect than the one asked for: say which.
@@ -231,7 +231,9 @@ func (r *reader) asNumbers(c usedCol) bool {
 // after the last named one: a file whose lines all end in a delimiter
 // (as spreadsheets export a stray empty column) has unnamed columns there,
 // which no plan can name; they are not among the names, and the rows keep
-// the header's width.
+// the header's width. where is keyed by ColumnKey: a name is found in
+// either Unicode form, and two names that are one in composed form are
+// refused as a name given twice.
 func (r *reader) names() ([]string, map[string]int, error) {
 	hdr, err := r.cr.Read()
 	if err == io.EOF {
@@ -257,10 +259,13 @@ func (r *reader) names() ([]string, map[string]int, error) {
 			}
 			return nil, nil, r.fail(line, "", "header: column %d has no name", i+1)
 		}
-		if j, dup := where[n]; dup {
+		if j, dup := where[ColumnKey(n)]; dup {
+			if names[j] != n {
+				return nil, nil, r.fail(line, "", "header: column names %s (column %d) and %s (column %d) are one name written in two Unicode forms (one with composed letters, one with letters and combining accents), which a plan cannot tell apart: rename one", quoteCell(names[j]), j+1, quoteCell(n), i+1)
+			}
 			return nil, nil, r.fail(line, "", "header: column name %s appears twice (columns %d and %d)", quoteCell(n), j+1, i+1)
 		}
-		where[n] = i
+		where[ColumnKey(n)] = i
 		names[i] = n
 	}
 	r.headerNames, r.headerLine = names, line

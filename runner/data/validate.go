@@ -90,7 +90,7 @@ func ValidateDialect(path string, rules []Rule, missingTokens []string, d Dialec
 	}
 	var cols []ruled
 	for _, ru := range rules {
-		j, ok := where[ru.Column]
+		j, ok := where[ColumnKey(ru.Column)]
 		if !ok {
 			continue
 		}
