@@ -72,6 +72,11 @@ func mistakeItems(dir string) []badInput {
 					}
 				}
 			}},
+		{id: "C14", name: "a command given no plan", args: []string{"run", "--out", filepath.Join(dir, "C14-out")}, code: 2, lines: true,
+			want:  []string{"ordplan run: no plan file given: name one (a YAML file)\nusage: ordplan run PLAN.yaml"},
+			check: noFolder("C14-out")},
+		{id: "C14", name: "a command given two plans", args: []string{"check", "a.yaml"}, plan: goodPlan, code: 2, lines: true,
+			want: []string{`ordplan check: unexpected argument "`, `" after the plan a.yaml: the command takes one plan file` + "\nusage: ordplan check PLAN.yaml"}},
 		{id: "O14", name: "a flag given twice", args: []string{"power", "--n", "100", "--out", filepath.Join(dir, "O14-power"), "--n", "200"}, plan: edit() + assumed("{a: 0.2}", ""), code: 2,
 			want:  []string{`ordplan power: --n is given twice ("100", then "200"); give each flag once (several items go in one value, comma separated: --n 100,200)`},
 			check: noFolder("O14-power")},

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"slices"
+	"strconv"
 	"strings"
 	"time"
 
@@ -64,11 +65,10 @@ func cmdFreeze(args []string, stdout, stderr io.Writer) int {
 	return exitOK
 }
 
-// leadingArg takes a plan path written before the options.
 // planArg reads the one plan path of a command, before or after its flags,
 // and parses the flags. stop is true when the command must end with code:
 // help was asked, a flag was wrong, or there is not exactly one plan path
-// (then usage is printed).
+// (then a line naming what is missing or too many, and usage, C14).
 func planArg(fs *flag.FlagSet, args []string, usage string, stderr io.Writer) (path string, stop bool, code int) {
 	path, args = leadingArg(args)
 	for {
@@ -83,13 +83,24 @@ func planArg(fs *flag.FlagSet, args []string, usage string, stderr io.Writer) (p
 		}
 		path, args = fs.Arg(0), fs.Args()[1:]
 	}
-	if fs.NArg() > 0 || path == "" {
-		fmt.Fprintln(stderr, usage)
-		return "", true, exitUsage
+	switch {
+	case path == "":
+		fmt.Fprintf(stderr, "%s: no plan file given: name one (a YAML file)\n", fs.Name())
+	case fs.NArg() > 0:
+		extra := fs.Args()
+		noun := "argument"
+		if len(extra) > 1 {
+			noun = "arguments"
+		}
+		fmt.Fprintf(stderr, "%s: unexpected %s %s after the plan %s: the command takes one plan file\n", fs.Name(), noun, words.AndList(words.Each(extra, strconv.Quote)), path)
+	default:
+		return path, false, exitOK
 	}
-	return path, false, exitOK
+	fmt.Fprintln(stderr, usage)
+	return "", true, exitUsage
 }
 
+// leadingArg takes a plan path written before the options.
 func leadingArg(args []string) (string, []string) {
 	if len(args) > 0 && len(args[0]) > 0 && args[0][0] != '-' {
 		return args[0], args[1:]
