@@ -361,11 +361,19 @@ func (env *ruleEnv) judge(r plan.Rule, f *FitEntry, alive []*FitEntry) (bool, st
 		if !res.OK() {
 			return false, fmt.Sprintf("status %s: %s", res.Status, res.Message)
 		}
+		env.num("max abs score", res.MaxAbsScore)
 		if len(res.Starts) > 0 {
+			env.num("starts", float64(len(res.Starts)))
+			env.num("starts agreeing", float64(res.StartsAgreeing))
 			return true, fmt.Sprintf("converged: best of %d starts, %d reaching it%s, max |score| %.2g", len(res.Starts), res.StartsAgreeing, refittedStarts(res), res.MaxAbsScore)
 		}
+		env.num("iterations", float64(res.Iterations))
 		return true, fmt.Sprintf("converged in %d iterations, max |score| %.2g", res.Iterations, res.MaxAbsScore)
 	case plan.RuleRejectNegativeProbabilities:
+		if res.Model.Comparison == fit.Cumulative || res.Status == fit.StatusNegativeProbs {
+			env.num("rows negative probability", float64(res.NegativeRows))
+			env.num("rows", float64(res.NRows))
+		}
 		if res.Status == fit.StatusNegativeProbs {
 			return false, fmt.Sprintf("%d of %d rows have a negative predicted category probability", res.NegativeRows, res.NRows)
 		}

@@ -40,6 +40,10 @@ func TestRuleRejectUnconverged(t *testing.T) {
 	if v := verdictOf(ro, "cumulative/parallel/logit"); v == nil || !v.Kept {
 		t.Errorf("parallel should be kept: %+v", v)
 	}
+	// decisions.json carries the numbers the verdict read, as its text.
+	if v, f := verdictOf(ro, "cumulative/parallel/logit"), or.Find("cumulative/parallel/logit"); v == nil || v.Numbers["iterations"] != float64(f.Result.Iterations) || v.Numbers["max_abs_score"] != f.Result.MaxAbsScore || f.Result.Iterations == 0 {
+		t.Errorf("numbers of a converged fit: %+v", v)
+	}
 	// The score rule tests parallel against the next less constrained
 	// model, partial; partial's is nonparallel, which has no finite
 	// maximum: the score test needs only partial's own fit, so partial is
@@ -184,8 +188,15 @@ rules:
 	if v == nil || v.Kept || !strings.Contains(v.Reason, "negative predicted category probability") {
 		t.Errorf("verdict %+v", v)
 	}
-	if v := verdictOf(or.Rules[0], "stage/nonparallel/logit"); v == nil || !v.Kept {
-		t.Errorf("stage model must be kept: %+v", v)
+	// decisions.json carries the count the verdict's text gives.
+	if v.Numbers["rows_negative_probability"] != float64(f.Result.NegativeRows) || v.Numbers["rows"] != 600 || !strings.HasPrefix(v.Reason, fmt.Sprintf("%d of 600 rows", f.Result.NegativeRows)) {
+		t.Errorf("numbers %v, reason %q", v.Numbers, v.Reason)
+	}
+	if v := verdictOf(or.Rules[0], "cumulative/parallel/logit"); v == nil || !v.Kept || len(v.Numbers) != 2 || v.Numbers["rows_negative_probability"] != 0 {
+		t.Errorf("parallel model: %+v", v)
+	}
+	if v := verdictOf(or.Rules[0], "stage/nonparallel/logit"); v == nil || !v.Kept || v.Numbers != nil {
+		t.Errorf("stage model must be kept, with no count (its probabilities are never negative): %+v", v)
 	}
 }
 
