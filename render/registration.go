@@ -111,7 +111,11 @@ func writeLockStatus(d *doc, st *lock.Status, version string, w lockWords, earli
 		case reason == "":
 			reason = md("**no stated reason**")
 		}
-		rows = append(rows, []string{md(mdCode(c.Path)), md(codeCell(c.From)), md(codeCell(c.To)), reason})
+		key := mdCode(c.Path)
+		if c.Moved != "" {
+			key += ", moved from " + mdCode(c.Moved) + " (unchanged)"
+		}
+		rows = append(rows, []string{md(key), md(codeCell(c.From)), md(codeCell(c.To)), reason})
 	}
 	d.table([]string{"Key", "Registered", "This " + w.what, "Stated reason"}, rows)
 	if w.folder {

@@ -92,6 +92,10 @@ func writeSensitivity(d *doc, r *runner.Result) {
 		s := sr.Sensitivity
 		var ch []string
 		for _, c := range sensitivityChanges(r, s) {
+			if c.Moved != "" {
+				ch = append(ch, fmt.Sprintf("%s: moved from %s (unchanged)", mdCode(c.Path), mdCode(c.Moved)))
+				continue
+			}
 			ch = append(ch, fmt.Sprintf("%s: %s → %s", mdCode(c.Path), mdCode(c.From), mdCode(c.To)))
 		}
 		why := s.Why

@@ -164,7 +164,7 @@ func planKeys(was, now json.RawMessage) (keys []string, known bool) {
 		return nil, false
 	}
 	for _, c := range changes {
-		keys = append(keys, fmt.Sprintf("%s %s -> %s", c.Path, c.From, c.To))
+		keys = append(keys, c.Path+" "+c.Transition())
 	}
 	return keys, true
 }

@@ -129,7 +129,7 @@ func printRegistration(w io.Writer, st *lock.Status, changes bool) {
 	fmt.Fprintln(w, registrationLine(st))
 	if changes {
 		for _, c := range st.Changes {
-			fmt.Fprintf(w, "  %s: %s -> %s (%s)\n", c.Path, c.From, c.To, c.ReasonText("NO STATED REASON"))
+			fmt.Fprintf(w, "  %s: %s (%s)\n", c.Path, c.Transition(), c.ReasonText("NO STATED REASON"))
 		}
 	}
 	for _, dv := range st.Unused {

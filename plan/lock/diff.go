@@ -7,6 +7,7 @@ import (
 	"io"
 	"slices"
 	"strconv"
+	"strings"
 )
 
 // Change is one difference between two canonical forms.
@@ -18,6 +19,20 @@ type Change struct {
 	// from another key that changed too (report.title from title), that
 	// key: the change is part of that key's, whose reason it takes.
 	Follows string `json:"follows,omitempty"`
+	// Moved is, for an item of a list of mappings (a rule, a sensitivity
+	// analysis) that moved unchanged, its key in the frozen list: Path is
+	// its key now, and From and To are the same text.
+	Moved string `json:"moved_from,omitempty"`
+}
+
+// Transition writes what changed at the key, as messages and records
+// list it: "FROM -> TO", or for an item that moved unchanged "moved from
+// KEY, unchanged: TEXT".
+func (c Change) Transition() string {
+	if c.Moved != "" {
+		return "moved from " + c.Moved + ", unchanged: " + c.To
+	}
+	return c.From + " -> " + c.To
 }
 
 // Absent marks a key that one side does not have.
@@ -90,6 +105,8 @@ func diffValues(path string, a, b *value, out *[]Change) {
 // items left over are removed (named by their index in the frozen list)
 // or added (by their index in the current one).
 func diffItems(path string, a, b []*value, out *[]Change) {
+	start := len(*out)
+	defer func() { *out = append((*out)[:start], moves((*out)[start:], path)...) }()
 	at := func(i int) string { return fmt.Sprintf("%s[%d]", path, i) }
 	same := func(x, y *value) bool { return x.text == y.text }
 	alike := func(x, y *value) bool { return x.object && y.object && slices.Equal(sortedKeys(x), sortedKeys(y)) }
@@ -120,6 +137,38 @@ func diffItems(path string, a, b []*value, out *[]Change) {
 		}
 	})
 	gap(i0, len(a), j0, len(b))
+}
+
+// moves joins, among the changes of the list at path, an item removed
+// and an item added with the same text into one change: the item moved
+// (Change.Moved), at the added item's place. An item the plan moved is
+// the same item, not one removed and another added (a sensitivity
+// analysis moved is not one added after freezing); the move is still a
+// change of the list, whose order is that of the rules and the report.
+func moves(cs []Change, path string) []Change {
+	item := func(c Change) bool {
+		return strings.HasPrefix(c.Path, path+"[") && !strings.ContainsAny(c.Path[len(path)+1:], ".[")
+	}
+	gone := map[int]bool{}
+	for j, c := range cs {
+		if c.From != Absent || !item(c) {
+			continue
+		}
+		for i, r := range cs {
+			if !gone[i] && r.To == Absent && item(r) && r.From == c.To {
+				gone[i] = true
+				cs[j].From, cs[j].Moved = r.From, r.Path
+				break
+			}
+		}
+	}
+	out := cs[:0:0]
+	for i, c := range cs {
+		if !gone[i] {
+			out = append(out, c)
+		}
+	}
+	return out
 }
 
 // walk aligns two lists by a longest common subsequence of items that eq

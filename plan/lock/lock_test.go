@@ -359,12 +359,22 @@ func TestRemovedAndInsertedRules(t *testing.T) {
 			`rules[0].reject_if_test_rejects.alpha: 0.05 -> 0.01`,
 			`rules[0]: {"reject_unconverged": true} -> (absent)`,
 		}},
+		// Moved, the rule is the same rule in another place: one change,
+		// not a rule removed and another added.
+		{"moved", strings.Replace(basePlan, "  - reject_unconverged: true\n  - reject_if_test_rejects: {test: lr, alpha: 0.05}\n", "  - reject_if_test_rejects: {test: lr, alpha: 0.05}\n  - reject_unconverged: true\n", 1), []string{
+			`rules[1]: moved from rules[0], unchanged: {"reject_unconverged": true}`,
+		}},
+		// Moved and changed, it is another item: one removed, one added.
+		{"moved, and the other rule changed", strings.Replace(basePlan, "  - reject_unconverged: true\n  - reject_if_test_rejects: {test: lr, alpha: 0.05}\n", "  - reject_if_test_rejects: {test: lr, alpha: 0.01}\n  - reject_unconverged: true\n", 1), []string{
+			`rules[0]: (absent) -> {"reject_if_test_rejects": {"against": "least_constrained", "alpha": 0.01, "test": "lr"}}`,
+			`rules[1]: {"reject_if_test_rejects": {"against": "least_constrained", "alpha": 0.05, "test": "lr"}} -> (absent)`,
+		}},
 	} {
 		p, _ := setup(t, tc.src)
 		st, _ := Check(p, true)
 		var got []string
 		for _, c := range st.Changes {
-			got = append(got, c.Path+": "+c.From+" -> "+c.To)
+			got = append(got, c.Path+": "+c.Transition())
 		}
 		slices.Sort(got)
 		slices.Sort(tc.want)

@@ -48,6 +48,21 @@ func TestSensitivityChangesAreDeviations(t *testing.T) {
 	if len(st.Changes) != 1 || st.Changes[0].Path != "sensitivity" || st.Changes[0].To != "(absent)" {
 		t.Fatalf("removed: %+v", st.Changes)
 	}
+	// Two analyses that changed places are the same analyses, moved: the
+	// list's order is a change, but neither analysis is added or changed
+	// since the plan was frozen (one read as added was called not
+	// registered in the report). A stated reason may name either place.
+	swapped := strings.Replace(withSensitivity, "  - name: sandwich_errors\n    why: The observed information may understate the errors.\n    change:\n      covariance: sandwich\n", "", 1) + "  - name: sandwich_errors\n    why: The observed information may understate the errors.\n    change:\n      covariance: sandwich\n"
+	p, _ = setupFrom(t, withSensitivity, swapped+"deviations:\n  - key: sensitivity[0]\n    reason: the subset first\n")
+	st, err = Check(p, false)
+	if err != nil || len(st.Changes) != 1 || st.Changes[0].Path != "sensitivity[1]" || st.Changes[0].Moved != "sensitivity[0]" || st.Changes[0].Reason != "the subset first" {
+		t.Fatalf("moved: %v %+v", err, st.Changes)
+	}
+	for i := range 2 {
+		if got := st.SensitivityChanges(i); len(got) != 0 {
+			t.Errorf("moved analysis %d: changes %+v", i, got)
+		}
+	}
 	// Its why is part of it.
 	p, _ = setupFrom(t, withSensitivity, strings.Replace(withSensitivity, "otherwise.", "otherwise", 1))
 	st, _ = Check(p, true)

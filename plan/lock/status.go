@@ -109,6 +109,10 @@ func Compare(p *plan.Plan, f *File) (*Status, error) {
 		e := Explained{Change: c}
 		// The most specific stated key wins.
 		best := stated(p.Deviations, c.Path)
+		if best < 0 && c.Moved != "" {
+			// An item moved: its key in the frozen plan names it too.
+			best = stated(p.Deviations, c.Moved)
+		}
 		if src, ok := p.Derived[c.Path]; ok && best < 0 && changedAt(changes, src) {
 			// A key the plan does not write, changed with the key it
 			// follows: that key's change, with its reason.
@@ -233,7 +237,7 @@ func (e *UnexplainedError) Error() string {
 		e.Plan, filepath.Base(e.Lock), e.Status.Lock.FrozenAt, words.Count(n, "key", "keys"))
 	for _, c := range e.Status.Changes {
 		if c.Reason == "" && c.Follows == "" {
-			fmt.Fprintf(&b, "\n  %s: %s -> %s", c.Path, c.From, c.To)
+			fmt.Fprintf(&b, "\n  %s: %s", c.Path, c.Transition())
 		}
 	}
 	for _, dv := range e.Status.Unused {
@@ -260,7 +264,7 @@ func (s *Status) SensitivityChanges(i int) []Explained {
 	for _, c := range s.Changes {
 		switch {
 		case c.Path == "sensitivity" && c.To != Absent,
-			c.Path == item && c.To != Absent,
+			c.Path == item && c.To != Absent && c.Moved == "",
 			strings.HasPrefix(c.Path, item+"."):
 			out = append(out, c)
 		}
