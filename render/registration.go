@@ -111,11 +111,11 @@ func writeLockStatus(d *doc, st *lock.Status, version string, w lockWords, earli
 		case reason == "":
 			reason = md("**no stated reason**")
 		}
-		key := mdCode(c.Path)
+		key, to := mdCode(c.Path), codeCell(c.To)
 		if c.Moved != "" {
-			key += ", moved from " + mdCode(c.Moved) + " (unchanged)"
+			key, to = key+", moved from "+mdCode(c.Moved), "the same (moved)"
 		}
-		rows = append(rows, []string{md(key), md(codeCell(c.From)), md(codeCell(c.To)), reason})
+		rows = append(rows, []string{md(key), md(codeCell(c.From)), md(to), reason})
 	}
 	d.table([]string{"Key", "Registered", "This " + w.what, "Stated reason"}, rows)
 	if w.folder {
