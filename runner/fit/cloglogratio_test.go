@@ -12,7 +12,8 @@ import (
 // bigExpNeg and bigLog at 400 bits; psi = z + log((e^u - 1)/u), psi' =
 // u/(1 - e^-u), psi” = psi' (e^u - 1 - u)/(e^u - 1)) from e^z of 1e-300 up to
 // past the switch to the tails' formulas at u = 1, where the series in
-// u (cloglogRatioSmall) takes over, and the loglog's as its mirror image.
+// u (cloglogRatioSmall) takes over (densely for u from e^-8 to 1), and the
+// loglog's as its mirror image.
 // Tolerances: 4e-16 (|psi| + psi') for psi and 4e-16 (psi' + psi”) for
 // psi' (u's rounding times the derivative, plus psi's own), 1e-15 |psi”|
 // for psi”.
@@ -40,6 +41,11 @@ func TestCloglogRatioSmallBig(t *testing.T) {
 	}
 	for z := sw - 0.01; z < sw+0.01; z += 0.0007 {
 		zs = append(zs, z)
+	}
+	// Densely where the series' terms matter (u from e^-8 to 1: the
+	// sums' order of evaluation, Estrin's scheme, shows there).
+	for i := -4000; i < 0; i++ {
+		zs = append(zs, float64(i)/500+0.0001)
 	}
 	var worst [3]float64
 	var worstAt [3]string
