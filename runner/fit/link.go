@@ -277,8 +277,8 @@ func cloglogBetween(l Link, a, b float64, derivs bool) (m middle, done bool) {
 // in z: lower(z) less upper(z), formed for the probit and cloglog links
 // from what the two tails share, with the kernels' exponential and
 // logarithm (fastExp, fastLog), and for the loglog link as the cloglog's
-// mirror image, and for the cauchy link from its table's two tails
-// (cauchyNear at z and -z). ok is false for the logit and far in the
+// mirror image, and for the cauchy link from a table of psi's own
+// (cauchyPsi). ok is false for the logit and far in the
 // tails (|z| > 30 for the probit; e^z below 1e-300 or above 700 for the
 // cloglog, e^-z for the loglog; |z| > cauchyFast for the cauchy), where
 // the caller takes lower and upper.
@@ -334,12 +334,8 @@ func (l Link) ratio(z float64) (v, d1, d2 float64, ok bool) {
 		if !(math.Abs(z) <= cauchyFast) {
 			return 0, 0, 0, false
 		}
-		// lower(z) less upper(z) = lower(-z) with d1 negated, the
-		// same sums bit for bit, without the tails' structs and
-		// Link.psi's clamps (the table's values are finite).
-		lv, ll, ld := cauchyNear(z, 2)
-		uv, ul, ud := cauchyNear(-z, 2)
-		return lv - uv, ll + ul, ld - ud, true
+		v, d1, d2 := cauchyPsi(z)
+		return v, d1, d2, true
 	}
 	return 0, 0, 0, false
 }

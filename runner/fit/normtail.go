@@ -245,6 +245,55 @@ func init() {
 	}
 }
 
+// cauchyPsiTable holds, for each centre c = (k - 256)/32, the Taylor
+// coefficients about c of the adjacent comparison's psi = log F(z) -
+// log F(-z) (v), of psi' = lam(z) + lam(-z) (d1) and of psi” = lam'(z) -
+// lam'(-z) (d2), from cauchyTable's at c and at -c (the centre of index
+// 2 cauchyMid - k; about it -z = -c - u, so its coefficient of u^j
+// counts with the sign (-1)^j): one polynomial each where the two tails
+// took two (Link.ratio).
+var cauchyPsiTable [2*cauchyMid + 1]struct {
+	v  [cauchyDeg + 1]float64
+	d1 [cauchyDeg]float64
+	d2 [cauchyDeg - 1]float64
+}
+
+func init() {
+	for k := range cauchyPsiTable {
+		t, lo, up := &cauchyPsiTable[k], &cauchyTable[k], &cauchyTable[2*cauchyMid-k]
+		sign := 1.0
+		for j := range t.v {
+			t.v[j] = lo.b[j] - sign*up.b[j]
+			if j < len(t.d1) {
+				t.d1[j] = lo.l[j] + sign*up.l[j]
+			}
+			if j < len(t.d2) {
+				t.d2[j] = lo.dl[j] - sign*up.dl[j]
+			}
+			sign = -sign
+		}
+	}
+}
+
+// cauchyPsi returns psi = log F(z) - log F(-z) under the cauchy link and
+// its first two derivatives for |z| <= cauchyFast (the caller checks),
+// from cauchyPsiTable as cauchyNear evaluates its polynomials.
+func cauchyPsi(z float64) (v, d1, d2 float64) {
+	k := int(z*probitPerUnit + (float64(cauchyMid) + 0.5))
+	u := z - float64(k-cauchyMid)*(1.0/probitPerUnit) // exact
+	t := &cauchyPsiTable[k]
+	u2 := u * u
+	u4 := u2 * u2
+	u8 := u4 * u4
+	b := &t.v
+	v = (b[0] + b[1]*u + u2*(b[2]+b[3]*u)) + u4*((b[4]+b[5]*u)+u2*(b[6]+b[7]*u)) + u8*(b[8]+b[9]*u+u2*b[10])
+	l := &t.d1
+	d1 = (l[0] + l[1]*u + u2*(l[2]+l[3]*u)) + u4*((l[4]+l[5]*u)+u2*(l[6]+l[7]*u)) + u8*(l[8]+l[9]*u)
+	d := &t.d2
+	d2 = (d[0] + d[1]*u + u2*(d[2]+d[3]*u)) + u4*((d[4]+d[5]*u)+u2*(d[6]+d[7]*u)) + u8*d[8]
+	return v, d1, d2
+}
+
 // cauchyNear returns log F(z), lam = f(z)/F(z) and lam's derivative
 // under the cauchy link for |z| <= cauchyFast (the caller checks), to
 // derivatives of order at most order (the others 0).

@@ -215,6 +215,81 @@ func bigCauchyTail(z float64, pi *big.Float) (logF, lam, dlam *big.Float) {
 	return bigLog(F, normPrec), lam, dlam
 }
 
+// TestCauchyPsiTableULP measures Link.ratio's cauchy psi = log F(z) -
+// log F(-z) and its two derivatives (cauchyPsi, a table of its own)
+// against math/big (bigCauchyTail at z and -z) at the points of
+// TestCauchyTableULP, and the two tails' difference (cauchyNear at z and
+// -z, as Link.psi formed it before) beside it. Errors in ulps of the
+// larger of the two terms (psi and psi” change sign; psi' is a sum of
+// two positive terms; for psi” the terms are lam' at z and -z, each
+// scaled as TestCauchyTableULP scales it). Fails above 8 ulp.
+func TestCauchyPsiTableULP(t *testing.T) {
+	pi := bigPi()
+	var zs []float64
+	for i := -1000; i <= 1000; i++ {
+		zs = append(zs, float64(i)*cauchyFast/1000)
+	}
+	for _, c := range []float64{0, 1, -1, 8, -8} {
+		for _, d := range []float64{-1.0 / 64, 1.0 / 64} {
+			if z := c + d; math.Abs(z) <= cauchyFast {
+				zs = append(zs, z, math.Nextafter(z, c))
+			}
+		}
+	}
+	zs = append(zs, cauchyFast, -cauchyFast, 0.5/probitPerUnit, -0.5/probitPerUnit)
+	// inUlps is |got - ref| in ulps of scale (as ulpErr counts them).
+	inUlps := func(got float64, ref, scale *big.Float) float64 {
+		e := new(big.Float).SetPrec(normPrec).Sub(bigN(got), ref)
+		e.Abs(e)
+		e.SetMantExp(e, 53-scale.MantExp(nil))
+		f, _ := e.Float64()
+		return f
+	}
+	larger := func(a, b *big.Float) *big.Float {
+		a, b = new(big.Float).Abs(a), new(big.Float).Abs(b)
+		if a.Cmp(b) < 0 {
+			return b
+		}
+		return a
+	}
+	var worst, worstTails [3]float64
+	var at [3]float64
+	for _, z := range zs {
+		v, d1, d2, ok := Cauchy.ratio(z)
+		if !ok {
+			t.Fatalf("ratio(%g) not formed", z)
+		}
+		lv, ll, ld := cauchyNear(z, 2)
+		uv, ul, ud := cauchyNear(-z, 2)
+		av, al, ad := bigCauchyTail(z, pi)
+		bv, bl, bd := bigCauchyTail(-z, pi)
+		rv := new(big.Float).SetPrec(normPrec).Sub(av, bv)
+		r1 := new(big.Float).SetPrec(normPrec).Add(al, bl)
+		r2 := new(big.Float).SetPrec(normPrec).Sub(ad, bd)
+		// lam' = f'/F - lam^2: its scale the larger of its terms
+		dscale := func(l, d *big.Float) *big.Float {
+			l2 := new(big.Float).SetPrec(normPrec).Mul(l, l)
+			return larger(new(big.Float).SetPrec(normPrec).Add(d, l2), l2)
+		}
+		scales := []*big.Float{larger(av, bv), r1, larger(dscale(al, ad), dscale(bl, bd))}
+		for i, c := range []struct {
+			got, tails float64
+			ref        *big.Float
+		}{{v, lv - uv, rv}, {d1, ll + ul, r1}, {d2, ld - ud, r2}} {
+			e := inUlps(c.got, c.ref, scales[i])
+			if e > worst[i] {
+				worst[i], at[i] = e, z
+			}
+			worstTails[i] = max(worstTails[i], inUlps(c.tails, c.ref, scales[i]))
+		}
+	}
+	t.Logf("cauchy psi table against math/big: psi within %.2f ulp of its larger term (at %g; the two tails' difference %.2f), psi' within %.2f ulp (at %g; %.2f), psi'' within %.2f ulp of its larger term (at %g; %.2f)",
+		worst[0], at[0], worstTails[0], worst[1], at[1], worstTails[1], worst[2], at[2], worstTails[2])
+	if worst[0] > 8 || worst[1] > 8 || worst[2] > 8 {
+		t.Errorf("cauchy psi table: %.2f, %.2f, %.2f ulp (limit 8)", worst[0], worst[1], worst[2])
+	}
+}
+
 // TestCauchyTableULP measures cauchyNear's log F, f/F and its derivative
 // against math/big (bigCauchyTail) over [-8, 8]: 2001 points and the
 // ends of the intervals between centres near 0 and +-8. The largest
