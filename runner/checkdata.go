@@ -250,7 +250,8 @@ func FewClustersWarnings(res *Result) []string {
 // whose points may separate thousands (data.Dataset.PointNotes), and on
 // an outcome code that looks like a code for a missing answer
 // (data.Dataset.StrayCode), and on predictor columns observed in fewer
-// than half of the rows (data.Dataset.MostlyMissing), which check and run
+// than half of the rows (data.Dataset.MostlyMissing), and on rows kept
+// for imputation that observe nothing it fills (NothingObserved), which check and run
 // print on the terminal as warnings (the report has them).
 func pointWarnings(outcome string, ds *data.Dataset) []string {
 	if ds == nil {
@@ -265,6 +266,9 @@ func pointWarnings(outcome string, ds *data.Dataset) []string {
 	}
 	for _, n := range ds.MostlyMissing {
 		out = append(out, fmt.Sprintf("outcome %s: %s", outcome, n))
+	}
+	if ds.NothingObserved != "" {
+		out = append(out, fmt.Sprintf("outcome %s: %s", outcome, ds.NothingObserved))
 	}
 	return out
 }

@@ -420,6 +420,37 @@ func mistakeItems(dir string) []badInput {
 					t.Errorf("fit --categories 1,2,3,4: exit %d, want %q in\n%s", code, want, e)
 				}
 			}},
+		{id: "W37", name: "rows kept for imputation that observe none of the columns it fills (notes below the table)", args: []string{"check"}, code: 0,
+			plan: edit("  file: d.csv\n", "  file: W37.csv\n  missing: impute\n  imputation: {sets: 2, iterations: 2}\n"),
+			setup: func(t *testing.T, dir, id string) {
+				// Two notes below the table, in a column the plan does not
+				// read: rows 122 and 123, every used cell empty.
+				withColumns(t, dir, id+".csv", "note", func(i int, f []string) string { return "" })
+				f, err := os.OpenFile(filepath.Join(dir, id+".csv"), os.O_APPEND|os.O_WRONLY, 0)
+				if err != nil {
+					t.Fatal(err)
+				}
+				fmt.Fprint(f, ",,,,,,,Source: an invented survey\n,,,,,,,NA marks a question not asked\n")
+				f.Close()
+			},
+			check: func(t *testing.T, dir, out, errs string) {
+				plan := filepath.Join(dir, "W37.yaml")
+				// It imputed both as rows of the data, without a word.
+				note := `2 rows kept for imputation observe none of the columns it fills (y, a, b; W37.csv:122, W37.csv:123): the imputation models make up every value of such a row, so it adds a row to every imputed set, and to the observations their degrees of freedom count, without a datum of its own (data.missing: impute). If such rows are notes, totals or spacer rows beside the table, delete them from the data; if they are units that answered nothing the plan reads, delete them too, or analyse complete cases (data.missing: drop), which drops them`
+				want := "warning: " + plan + ": outcome y: " + strings.ReplaceAll(note, "W37.csv", filepath.Join(dir, "W37.csv")) + "\n"
+				if !strings.Contains(errs, want) {
+					t.Errorf("check: want %q in\n%s", want, errs)
+				}
+				warnedInRun(t, plan, filepath.Join(dir, "W37-out"), want, "observe none of the columns it fills (y, a, b;", "2 rows kept for imputation observe none of the columns it fills")
+				// Complete cases drop such rows (counted): no warning.
+				cc := filepath.Join(dir, "W37cc.yaml")
+				if err := os.WriteFile(cc, []byte(edit("  file: d.csv\n", "  file: W37.csv\n")), 0o644); err != nil {
+					t.Fatal(err)
+				}
+				if _, e, code := runCLI("check", cc); code != 0 || strings.Contains(e, "observe none") {
+					t.Errorf("check (complete cases): exit %d\n%s", code, e)
+				}
+			}},
 		{id: "W34", name: "a predictor column observed in fewer than half of the rows (complete cases and data.missing: impute)", args: []string{"check"}, code: 0,
 			plan: edit("  file: d.csv\n", "  file: W34.csv\n", "predictors: [a, b]\n", "predictors: [a, b, s]\n"),
 			setup: func(t *testing.T, dir, id string) {

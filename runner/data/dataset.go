@@ -93,6 +93,11 @@ type Dataset struct {
 	// observed in fewer than half of the rows (mostlyMissing): check and
 	// run warn of them.
 	MostlyMissing []string
+	// NothingObserved is the note (in Notes too) on the rows kept for
+	// imputation that observe none of the columns it fills (the outcome
+	// and every predictor column), "" when there are none; check and run
+	// warn of it (W37).
+	NothingObserved string
 	// entries are Options.Entries, for FewRowsCause.
 	entries map[string][]Entry
 	// Sheet names the worksheet of a workbook the rows come from, and

@@ -156,6 +156,9 @@ func (r *reader) finish(t *rowTally, d *Dataset) (*Dataset, error) {
 	if !opt.Part {
 		d.MostlyMissing = mostlyMissing(r.cols, d.Missing, opt.KeepIncomplete)
 		d.Notes = append(d.Notes, d.MostlyMissing...)
+		if d.NothingObserved = r.nothingObserved(d); d.NothingObserved != "" {
+			d.Notes = append(d.Notes, d.NothingObserved)
+		}
 		// After the notes, which its refusal gives when few rows remain
 		// (Dataset.FewRowsSentence); parts are judged once on the whole
 		// data (PartsSummary).
