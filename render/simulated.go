@@ -210,7 +210,11 @@ func simulatedWeightsText(w *runner.SimulatedWeights) string {
 func simulatedMissingText(ms []runner.SimulatedMissing) string {
 	parts := make([]string, len(ms))
 	marker := map[string]bool{}
+	blank := ""
 	for i, m := range ms {
+		if m.BlankRows != "" {
+			blank = fmt.Sprintf(", but for the first cell of a row missing every column, written %s (a line of empty cells alone is a blank line, no row)", mdCode(m.BlankRows))
+		}
 		t := fmt.Sprintf("%s %s%% %s", mdCode(m.Column), strconv.FormatFloat(100*m.Proportion, 'g', 4, 64), m.Mechanism)
 		if m.Count != nil {
 			t += fmt.Sprintf(" (%d of the %d rows analysed)", *m.Count, m.Of)
@@ -222,7 +226,10 @@ func simulatedMissingText(ms []runner.SimulatedMissing) string {
 	if len(marker) > 1 || !marker[""] {
 		written = "a missing-value marker of the plan (data.missing_values, or the column's own code)"
 	}
-	return fmt.Sprintf("Missing values were drawn into the simulated data as the assumptions state (`assumptions.missing`; under \"at random given\", the log-odds of a value being missing change by the stated strength per standard deviation of the named column, the constant set so that the stated share holds among the rows the plan analyses): %s. Each was written as %s.", strings.Join(parts, "; "), written)
+	if written != "an empty cell" {
+		blank = ""
+	}
+	return fmt.Sprintf("Missing values were drawn into the simulated data as the assumptions state (`assumptions.missing`; under \"at random given\", the log-odds of a value being missing change by the stated strength per standard deviation of the named column, the constant set so that the stated share holds among the rows the plan analyses): %s. Each was written as %s%s.", strings.Join(parts, "; "), written, blank)
 }
 
 // writeGenerating shows the model the simulated outcomes were drawn from,

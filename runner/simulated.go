@@ -111,8 +111,12 @@ type SimulatedMissing struct {
 	Mechanism  string         `json:"mechanism"` // "completely at random" or "at random given ..."
 	Given      []MissingGiven `json:"given,omitempty"`
 	Marker     string         `json:"written_as"`
-	Count      *int           `json:"missing,omitempty"`
-	Of         int            `json:"of_rows,omitempty"`
+	// BlankRows is the text written instead of the empty Marker in a row
+	// that misses every column written (this column is its first), which
+	// an empty cell would make a blank line; "" when no row can.
+	BlankRows string `json:"written_as_in_rows_missing_every_column,omitempty"`
+	Count     *int   `json:"missing,omitempty"`
+	Of        int    `json:"of_rows,omitempty"`
 }
 
 // MissingGiven is a column the missingness depends on, with its strength:

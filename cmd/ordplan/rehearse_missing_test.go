@@ -4,8 +4,10 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 )
@@ -169,5 +171,61 @@ func TestSimulatedFailureNamesNoTemporaryFile(t *testing.T) {
 	pm, _ := os.ReadFile(filepath.Join(pout, "power.md"))
 	if !strings.Contains(string(pm), "At n = 30 the first failed replicate said: simulated n=30 replicate 1: column \"y\": only one category") || strings.Contains(string(pm), "ordplan-power-") {
 		t.Errorf("power.md:\n%s", pm)
+	}
+}
+
+// A simulated row that misses every column written (the outcome and every
+// predictor made missing, no weights, offset or cluster) is a row of the
+// simulated data: written with empty cells alone it was a line of
+// delimiters, which the reader skips as a blank line, so that the
+// rehearsal read fewer rows than it drew and each column's missing values
+// in the analysis were fewer than the report said it had drawn (x: 175 of
+// 300 rows drawn, 159 of 284 read). Its first cell is written NA.
+func TestRehearseRowsMissingEveryColumn(t *testing.T) {
+	dir := t.TempDir()
+	planPath := filepath.Join(dir, "plan.yaml")
+	src := strings.Replace(imputingPlan, "    z: {proportion: 0.3, given: {y: 1.0}}\n", "    z: {proportion: 0.6}\n    y: {proportion: 0.5}\n    g: {proportion: 0.5}\n", 1)
+	src = strings.Replace(src, "x: {proportion: 0.2}", "x: {proportion: 0.6}", 1)
+	if err := os.WriteFile(planPath, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "reh")
+	if _, errs, code := runCLI("rehearse", planPath, "--quiet", "--out", out); code != 0 {
+		t.Fatalf("rehearse: exit %d: %s", code, errs)
+	}
+	sim, err := os.ReadFile(filepath.Join(out, "simulated-data.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	blank := 0
+	for _, l := range strings.Split(strings.TrimSpace(string(sim)), "\n")[1:] {
+		if strings.Trim(l, ",") == "" {
+			t.Fatalf("simulated-data.csv holds a line of delimiters alone: %q", l)
+		}
+		if strings.Trim(l, ",") == "NA" {
+			blank++
+		}
+	}
+	if blank == 0 {
+		t.Fatal("no row misses every column: the test does not test")
+	}
+	b, err := os.ReadFile(filepath.Join(out, "report.md"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	report := string(b)
+	for _, want := range []string{
+		"300 rows read, 300 used",
+		"Each was written as an empty cell, but for the first cell of a row missing every column, written `NA` (a line of empty cells alone is a blank line, no row).",
+	} {
+		if !strings.Contains(report, want) {
+			t.Errorf("report.md lacks %q", want)
+		}
+	}
+	// The missing values the report says were drawn are those the analysis
+	// counts.
+	drawn := regexp.MustCompile("`x` 60% completely at random \\((\\d+) of the 300 rows analysed\\)").FindStringSubmatch(report)
+	if drawn == nil || !strings.Contains(report, fmt.Sprintf("Predictor column \"x\" is observed in %d of the 300 rows (%s missing", 300-atoi(drawn[1]), drawn[1])) {
+		t.Errorf("the missing values of x drawn (%v) are not those the analysis counts", drawn)
 	}
 }

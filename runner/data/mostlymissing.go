@@ -3,6 +3,7 @@ package data
 import (
 	"fmt"
 	"math"
+	"path/filepath"
 	"slices"
 	"strings"
 )
@@ -83,11 +84,14 @@ func (r *reader) nothingObserved(d *Dataset) string {
 }
 
 // where writes a line number of the rows being read as "file:line",
-// through the parts for data held as parts (Dataset.Where once read).
+// through the parts for data held as parts (Dataset.Where once read), the
+// file by its name without its folder: the notes go into the report,
+// whose bytes do not depend on where the files lie (a rehearsal's
+// simulated file lies in a temporary folder).
 func (r *reader) where(line int) string {
 	file := r.file
 	if pr, ok := r.cr.(*partRecords); ok {
 		file, line = placeOf(pr.spans, file, line)
 	}
-	return fmt.Sprintf("%s:%d", file, line)
+	return fmt.Sprintf("%s:%d", filepath.Base(file), line)
 }

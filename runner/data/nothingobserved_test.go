@@ -28,14 +28,14 @@ func TestNothingObserved(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if want := "1 row kept for imputation observes none of the columns it fills (y, x, g; " + a + ":6): the imputation models"; !strings.HasPrefix(d.NothingObserved, want) {
+	if want := "1 row kept for imputation observes none of the columns it fills (y, x, g; a.csv:6): the imputation models"; !strings.HasPrefix(d.NothingObserved, want) {
 		t.Errorf("one file: %q, want it to start %q", d.NothingObserved, want)
 	}
 	d, err = LoadFiles([]string{a, b}, opt)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if want := "4 rows kept for imputation observe none of the columns it fills (y, x, g; " + a + ":6, " + b + ":3, " + b + ":5, and 1 more): "; !strings.HasPrefix(d.NothingObserved, want) {
+	if want := "4 rows kept for imputation observe none of the columns it fills (y, x, g; a.csv:6, b.csv:3, b.csv:5, and 1 more): "; !strings.HasPrefix(d.NothingObserved, want) {
 		t.Errorf("parts: %q, want it to start %q", d.NothingObserved, want)
 	}
 	if !strings.Contains(strings.Join(d.Notes, "\n"), d.NothingObserved) {

@@ -4,9 +4,11 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"strings"
 
 	"ordplan/plan"
 	"ordplan/runner"
+	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
 
@@ -139,7 +141,59 @@ func (s *Sim) prepareMissing(rows []row) error {
 		}
 		s.Missing = append(s.Missing, mc)
 	}
+	if len(s.Outcomes) > 0 {
+		s.blankMarker = blankMarker(p, s.Outcomes[0].Column)
+	}
 	return nil
+}
+
+// blankMarker is the text written in the first cell (the first outcome's)
+// of a row that misses every column written: a text other than the empty
+// cell that the plan's reader reads as missing there (NA under the
+// default markers, else the first non-empty one of data.missing_values or
+// of the column's own codes), "" when the plan reads none. Written empty,
+// such a row is a line of delimiters alone, which the reader skips as a
+// blank line: the rows read were fewer than those drawn, and every
+// column's missing values fewer than those counted and reported.
+func blankMarker(p *plan.Plan, col string) string {
+	marks := p.Data.MissingValues
+	if marks == nil {
+		marks = data.DefaultMissing
+	}
+	if e := p.EntryOf(col); e != nil {
+		marks = append(slices.Clone(marks), e.Missing...)
+	}
+	for _, m := range marks {
+		if strings.TrimSpace(m) != "" {
+			return m
+		}
+	}
+	return ""
+}
+
+// blankPossible reports whether a row can miss every column written: every
+// outcome and predictor is made missing, and no weights, offset or
+// cluster column (always written) is simulated.
+func (s *Sim) blankPossible() bool {
+	if s.Weights != "" || s.Offset != "" || s.Cluster != "" {
+		return false
+	}
+	stated := func(outcome, pred int) bool {
+		return slices.ContainsFunc(s.Missing, func(mc missingColumn) bool {
+			return !mc.never && mc.outcome == outcome && (outcome >= 0 || mc.pred == pred)
+		})
+	}
+	for oi := range s.Outcomes {
+		if !stated(oi, -1) {
+			return false
+		}
+	}
+	for k := range s.Predictors {
+		if !stated(-1, k) {
+			return false
+		}
+	}
+	return true
 }
 
 // calibrationProbs gives each calibration row's category probabilities
@@ -204,6 +258,9 @@ func (s *Sim) MissingRecord(counts []int, of int) []runner.SimulatedMissing {
 	var out []runner.SimulatedMissing
 	for i, mc := range s.Missing {
 		m := runner.SimulatedMissing{Column: mc.Column, Proportion: mc.Proportion, Mechanism: mc.Mechanism(), Marker: mc.marker}
+		if mc.outcome == 0 && mc.marker == "" && s.blankPossible() {
+			m.BlankRows = s.blankMarker
+		}
 		for _, g := range mc.Given {
 			m.Given = append(m.Given, runner.MissingGiven{Column: g.Column, Strength: g.Strength})
 		}

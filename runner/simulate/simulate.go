@@ -86,7 +86,10 @@ type Sim struct {
 	keepCol []int
 	// Missing is the stated missingness, column by column.
 	Missing []missingColumn
-	Weights string // the weights column, drawn as weight says
+	// blankMarker is written in the first cell of a row missing every
+	// column (blankMarker).
+	blankMarker string
+	Weights     string // the weights column, drawn as weight says
 	// weight is how the weights column is drawn: from the dictionary's
 	// values (equally often) or uniformly over its range; nil when the
 	// dictionary states neither: every weight is 1.
@@ -1268,6 +1271,11 @@ func (s *Sim) WriteCounted(w io.Writer, n int, replicate uint64) (Written, error
 		}
 		if s.Cluster != "" {
 			cells = append(cells, "c"+strconv.Itoa(s.clusterOf(i, n)+1))
+		}
+		if s.blankMarker != "" && !slices.ContainsFunc(cells, func(c string) bool { return c != "" }) {
+			// Missing every column: a line of delimiters alone would be
+			// read as a blank line, no row (blankMarker).
+			cells[0] = csvCell(s.blankMarker)
 		}
 		for j, c := range cells {
 			if j > 0 {
