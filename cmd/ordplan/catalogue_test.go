@@ -2684,6 +2684,20 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("the run went on to its output folder: %v", err)
 				}
 			}},
+		// The record named in place of its folder, and a power study's
+		// folder (no decisions.json), are said as such.
+		{id: "O12", name: "--previous naming the decisions record, not its folder", args: []string{"run", "--previous", filepath.Join(dir, "O12-run", "decisions.json")}, plan: goodPlan, code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				os.MkdirAll(filepath.Join(dir, "O12-run"), 0o755)
+				os.WriteFile(filepath.Join(dir, "O12-run", "decisions.json"), []byte(`{"program": "ordplan"}`), 0o644)
+			},
+			want: []string{"decisions.json is a file, not a folder; --previous names the output folder of an earlier ordplan run (its --out, which holds its decisions.json): give the folder that holds it, O12-run\n"}},
+		{id: "O12", name: "--previous naming the output folder of ordplan power", args: []string{"run", "--previous", filepath.Join(dir, "O12-power")}, plan: goodPlan, code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				os.MkdirAll(filepath.Join(dir, "O12-power"), 0o755)
+				os.WriteFile(filepath.Join(dir, "O12-power", "run.json"), []byte(`{"program": "ordplan", "made_by": "power", "outputs_sha256": {"power.md": "0"}}`), 0o644)
+			},
+			want: []string{"O12-power holds the outputs of ordplan power (its run.json says so): a power study runs the plan on simulated data and writes no decisions.json; name the output folder of an earlier ordplan run, or leave --previous out"}},
 		// A rehearsal's folder holds a decisions.json too, of invented
 		// data: it is no earlier run of the real data.
 		{id: "R8", name: "--previous naming the output folder of ordplan rehearse", args: []string{"run", "--previous", filepath.Join(dir, "R8-rehearsal")}, plan: goodPlan, code: 1,

@@ -526,6 +526,24 @@ func previousMaker(dir string) (command string, ok bool) {
 	return rec.MadeBy, true
 }
 
+// previousFolder refuses a --previous that is no run's output folder in
+// ways ReadPrevious would name only as a file it cannot open (O12): a
+// file (decisions.json itself, say) or the folder of a power study, whose
+// run.json says so and which has no decisions.json.
+func previousFolder(dir string) error {
+	if fi, err := os.Stat(dir); err == nil && !fi.IsDir() {
+		hint := ""
+		if b := filepath.Base(dir); b == "decisions.json" || b == recordFile {
+			hint = ": give the folder that holds it, " + filepath.Dir(dir)
+		}
+		return fmt.Errorf("--previous: %s is a file, not a folder; --previous names the output folder of an earlier ordplan run (its --out, which holds its decisions.json)%s", dir, hint)
+	}
+	if maker, ok := previousMaker(dir); ok && maker == "power" {
+		return fmt.Errorf("--previous: %s holds the outputs of ordplan power (its run.json says so): a power study runs the plan on simulated data and writes no decisions.json; name the output folder of an earlier ordplan run, or leave --previous out", dir)
+	}
+	return nil
+}
+
 // maxRecordBytes is the largest run.json read as a record: larger is not
 // one this program wrote.
 const maxRecordBytes = 64 << 20

@@ -120,6 +120,9 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 	// folder is said at once) and before this run may replace it.
 	var prev *runner.Decisions
 	if *previous != "" {
+		if err := previousFolder(*previous); err != nil {
+			return fail(stderr, err)
+		}
 		if prev, err = runner.ReadPrevious(*previous); err != nil {
 			return fail(stderr, err)
 		}
