@@ -311,7 +311,7 @@ func BuildDecisions(r *Result) *Decisions {
 	for _, or := range r.Outcomes {
 		read := or.AsRead()
 		od := OutcomeDecisions{Outcome: or.Outcome.Column, Categories: or.Data.Categories, Counts: or.Data.Counts,
-			RowsRead: read.RowsRead, RowsUsed: read.N, Dropped: nonNilDrops(read.Dropped), RowsSubsetUnknown: read.RowsUndecided, NObs: fit.Observations(read.N, read.NObs(), sampling),
+			RowsRead: read.RowsRead, RowsUsed: read.N, Dropped: nonNil(read.Dropped), RowsSubsetUnknown: read.RowsUndecided, NObs: fit.Observations(read.N, read.NObs(), sampling),
 			Choice: or.Choice, Fallback: or.Fallback, Notes: nonNil(or.Notes), Final: map[string]Verdict{}}
 		if or.Observed != nil {
 			od.Counts = or.Observed.Counts
@@ -337,10 +337,10 @@ func BuildDecisions(r *Result) *Decisions {
 			}
 		}
 		for _, tb := range or.Tests {
-			od.Tests = append(od.Tests, TestBlockJSON{tb.Approach, tb.Link, tb.Global, tb.PerVariable, tb.Nested})
+			od.Tests = append(od.Tests, TestBlockJSON{tb.Approach, tb.Link, nonNil(tb.Global), nonNil(tb.PerVariable), nonNil(tb.Nested)})
 		}
 		for _, ro := range or.Rules {
-			od.Rules = append(od.Rules, RuleJSON{ro.Rule.Kind, ro.Rule.Line, ro.Description, ro.Verdicts})
+			od.Rules = append(od.Rules, RuleJSON{ro.Rule.Kind, ro.Rule.Line, ro.Description, nonNil(ro.Verdicts)})
 		}
 		if or.Chosen != nil {
 			id := or.Chosen.ID
@@ -382,16 +382,10 @@ func verdictText(f *FitEntry) string {
 	return f.Verdict
 }
 
-func nonNil(xs []string) []string {
+// nonNil writes an empty list of decisions.json as [], never null.
+func nonNil[T any](xs []T) []T {
 	if xs == nil {
-		return []string{}
-	}
-	return xs
-}
-
-func nonNilDrops(xs []data.DropCount) []data.DropCount {
-	if xs == nil {
-		return []data.DropCount{}
+		return []T{}
 	}
 	return xs
 }

@@ -2157,6 +2157,11 @@ func catalogue(dir string) (items []badInput) {
 				if rep, _ := os.ReadFile(filepath.Join(dir, "P28-out", "report.md")); !strings.Contains(string(rep), "**Result: no model chosen:** every candidate was rejected, and the plan says to stop (otherwise: stop).") {
 					t.Errorf("the report's decision log does not end as the catalogue says:\n%s", rep)
 				}
+				// decisions.json lists the choosing rule's verdicts on no
+				// model as an empty list (it wrote null).
+				if dec, _ := os.ReadFile(filepath.Join(dir, "P28-out", "decisions.json")); !strings.Contains(string(dec), `"verdicts": []`) || strings.Contains(string(dec), `"verdicts": null`) {
+					t.Errorf("decisions.json: the choosing rule's verdicts are not []:\n%s", dec)
+				}
 				// With a fallback, that model is reported and marked.
 				p := filepath.Join(dir, "P28b.yaml")
 				os.WriteFile(p, []byte(edit("reject_unconverged: true", "reject_if_sparse: {per_parameter: 1000}", "{by: aic}", "{by: aic, otherwise: stage/parallel/logit}")), 0o644)
