@@ -169,7 +169,7 @@ func writeReplacedLocks(d *doc, st *lock.Status, w lockWords, runsBefore bool) {
 	if st.State == lock.StateNone {
 		d.p("**An earlier lock of this plan is kept beside it** (`ordplan freeze --replace` kept it when the plan was frozen anew), but the lock itself (%s) is gone: the plan was registered, and its registration is no longer read. Put the lock back, or freeze the plan again.", mdCode(st.LockFile))
 	} else {
-		known := "this report cannot tell whether the data had been seen"
+		known := "and this report cannot tell whether the data had been seen by then"
 		if runsBefore {
 			known = "and this output folder held results of a run under an earlier lock before it was frozen anew (listed below)"
 		}
