@@ -79,6 +79,17 @@ func TestChooseAndTieBreak(t *testing.T) {
 			others: map[string]string{"sep": "no AIC: status no_finite_maximum"},
 		},
 		{
+			// The fit's own message says why it has no criterion (here the
+			// separation a level found only in one category causes), which
+			// the report's decision log would otherwise never show without
+			// an earlier reject_unconverged rule.
+			name: "a fit without a criterion is set aside with its reason", by: "aic",
+			fits: []*FitEntry{{ID: "sep", Result: &fit.Result{Status: nofin, NParams: 3, Message: "every row with g.b = 1 is in category \"hi\""}},
+				candidate("fine", ok, 125, 0, 5)},
+			chosen: "fine", reason: "chosen: AIC 125.000",
+			others: map[string]string{"sep": "no AIC: status no_finite_maximum: every row with g.b = 1 is in category \"hi\""},
+		},
+		{
 			name: "nothing usable", by: "aic",
 			fits:   []*FitEntry{candidate("sep", nofin, 0, 0, 3)},
 			reason: "no model chosen: every candidate was rejected, and the plan says to stop",

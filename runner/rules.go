@@ -1174,7 +1174,7 @@ func (env *ruleEnv) fallback(r plan.Rule, ro *RuleOutcome) {
 // fit has none.
 func (env *ruleEnv) criterion(by string, f *FitEntry) (float64, string) {
 	if !f.OK() {
-		return math.NaN(), "status " + string(f.Result.Status)
+		return math.NaN(), "status " + f.Problem()
 	}
 	switch by {
 	case "aic":
