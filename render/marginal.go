@@ -6,6 +6,7 @@ import (
 	"slices"
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/design"
@@ -140,7 +141,7 @@ func pointParts(or *runner.OutcomeResult, x []float64) []string {
 			continue
 		}
 		if k < len(cat) && cat[k] {
-			parts = append(parts, fmt.Sprintf("%s = %s", p, or.Design.Sources[k].Cat.Levels[int(x[k])]))
+			parts = append(parts, fmt.Sprintf("%s = %s", p, words.Level(or.Design.Sources[k].Cat.Levels[int(x[k])])))
 			continue
 		}
 		parts = append(parts, fmt.Sprintf("%s = %s", p, numfmt.Num(x[k])))

@@ -7,6 +7,7 @@ import (
 	"strconv"
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/runner/data"
 	"ordplan/runner/design"
 	"ordplan/runner/fit"
@@ -285,9 +286,9 @@ func zeroText(dz *design.Design, k int, ranges *sourceRanges) string {
 		case design.Sum:
 			return "the unweighted mean over the levels of " + t.Name
 		case design.Successive:
-			return t.Name + " = " + kept[0]
+			return t.Name + " = " + words.Level(kept[0])
 		}
-		return t.Name + " = " + ref
+		return t.Name + " = " + words.Level(ref)
 	}
 	tr := t.Transform
 	col := dz.Sources[t.Source].Name

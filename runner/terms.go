@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"slices"
-	"strconv"
 	"strings"
 
 	"ordplan/internal/words"
@@ -170,42 +169,24 @@ func describeCategorical(r design.TermRecord) string {
 	columns := levelColumns(r)
 	levels := make([]string, len(r.Levels))
 	for i, l := range r.Levels {
-		levels[i] = levelWord(l)
+		levels[i] = words.Level(l)
 		if c, ok := columns[l]; ok && c != r.Term+"."+l {
 			levels[i] += " (column " + c + ")"
 		}
 	}
 	what += " with levels " + words.AndList(levels)
 	if n := len(r.Dropped); n > 0 {
-		what += fmt.Sprintf(" (%s %s, declared but in no row used, dropped)", map[bool]string{true: "level", false: "levels"}[n == 1], words.AndList(levelWords(r.Dropped)))
+		what += fmt.Sprintf(" (%s %s, declared but in no row used, dropped)", map[bool]string{true: "level", false: "levels"}[n == 1], words.AndList(words.Each(r.Dropped, words.Level)))
 	}
 	switch r.Coding {
 	case design.Sum:
-		what += fmt.Sprintf(" in sum-to-zero coding, one column per level other than the reference level %s, which is -1 in every column", levelWord(r.Reference))
+		what += fmt.Sprintf(" in sum-to-zero coding, one column per level other than the reference level %s, which is -1 in every column", words.Level(r.Reference))
 	case design.Successive:
-		what += fmt.Sprintf(" in successive-difference coding, one column per level after the first (%s), each 1 at its level and above and 0 below", levelWord(r.Levels[0]))
+		what += fmt.Sprintf(" in successive-difference coding, one column per level after the first (%s), each 1 at its level and above and 0 below", words.Level(r.Levels[0]))
 	default:
-		what += fmt.Sprintf(" in treatment coding, one 0/1 column per level other than the reference level %s", levelWord(r.Reference))
+		what += fmt.Sprintf(" in treatment coding, one 0/1 column per level other than the reference level %s", words.Level(r.Reference))
 	}
 	return what
-}
-
-// levelWord writes a level in a list of levels: as it is, or quoted when
-// it is empty or holds a space or punctuation that would blur the list.
-func levelWord(l string) string {
-	if l == "" || strings.ContainsAny(l, " ,;:()\"'") {
-		return strconv.Quote(l)
-	}
-	return l
-}
-
-// levelWords is levelWord of each level.
-func levelWords(ls []string) []string {
-	out := make([]string, len(ls))
-	for i, l := range ls {
-		out[i] = levelWord(l)
-	}
-	return out
 }
 
 // levelColumns maps each level of a categorical term that has a column

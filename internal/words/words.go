@@ -100,6 +100,18 @@ func Some(xs []string, n int) string {
 	return strings.Join(xs[:n], ", ") + fmt.Sprintf(" and %d more", len(xs)-n)
 }
 
+// Level writes a level (a category, a value of a column read as text) in
+// running text or a list: as it is, or quoted when it is empty or holds a
+// space or punctuation that would blur the list ("site in {north, \"so,
+// uth\"}", "site = \"east side\", x = 5"): the one way the program
+// decides whether a level needs quotes.
+func Level(l string) string {
+	if l == "" || strings.ContainsAny(l, " ,;:(){}=\"'") {
+		return strconv.Quote(l)
+	}
+	return l
+}
+
 // OrList renders ["a", "b", "c"] as "a, b or c".
 func OrList(words []string) string { return list(words, " or ") }
 

@@ -71,3 +71,17 @@ func TestCount(t *testing.T) {
 		}
 	}
 }
+
+// A level is written as it is unless it would blur a list or a "column =
+// level" pair: empty, or holding a space or punctuation such as a comma.
+func TestLevel(t *testing.T) {
+	for _, c := range [][2]string{
+		{"north", "north"}, {"01", "01"}, {"café", "café"}, {"a.b_c", "a.b_c"},
+		{"", `""`}, {"east side", `"east side"`}, {"so,uth", `"so,uth"`}, {`pub "x"`, `"pub \"x\""`},
+		{"a=b", `"a=b"`}, {"{x}", `"{x}"`},
+	} {
+		if got := Level(c[0]); got != c[1] {
+			t.Errorf("Level(%q) = %s, want %s", c[0], got, c[1])
+		}
+	}
+}

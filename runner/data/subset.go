@@ -5,6 +5,8 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+
+	"ordplan/internal/words"
 )
 
 // Condition keeps the rows whose cell in Column compares with a number
@@ -35,7 +37,7 @@ func (c Condition) String() string {
 		if c.Op == "not_in" {
 			op = "not in"
 		}
-		return fmt.Sprintf("%s %s {%s}", c.Column, op, strings.Join(c.Values, ", "))
+		return fmt.Sprintf("%s %s {%s}", c.Column, op, strings.Join(words.Each(c.Values, words.Level), ", "))
 	}
 	return fmt.Sprintf("%s %s %s", c.Column, c.Op, strconv.FormatFloat(c.Number, 'g', -1, 64))
 }
