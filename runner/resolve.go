@@ -560,6 +560,9 @@ func (a *Analysis) observedIn(r Reading, ds *data.Dataset, in string) error {
 	if miss := ds.N - observedOutcomes(ds); miss > 0 {
 		rows = fmt.Sprintf("the %d rows used whose %s is observed (the other %d of the %d rows used miss it, to be imputed)", ds.N-miss, ds.Outcome, miss, ds.N)
 	}
+	if conds := r.outcomeConditions(); len(conds) > 0 {
+		rows += ", which " + strings.Join(conds, " and ") + " chooses by the outcome's own value"
+	}
 	if why := ds.FewRowsCause(); why != "" {
 		return fmt.Errorf("%s: %s: category %q is declared but never observed in %s: %s. If these are the rows meant, remove it from %s or merge it with a neighbour",
 			a.Source, r.Key, ds.Unobserved[0], rows, why, r.CategoriesKey)

@@ -88,6 +88,9 @@ func Run(p *plan.Plan, opt Options) (*Result, error) {
 		if err != nil {
 			return nil, err
 		}
+		if w := an.Outcomes[i].outcomeSelection(); w != "" {
+			or.Notes = append(or.Notes, w+".")
+		}
 		res.Outcomes = append(res.Outcomes, or)
 	}
 	res.DataHash = dataHash()

@@ -293,7 +293,8 @@ func SensitivityWarnings(r *Result) []string {
 // read statistics ignoring the clusters (ClusterWarnings), two-category
 // outcomes (BinaryWarnings, those the data found), categorical
 // predictors held at their reference in pairs of levels
-// (PairsProfileWarnings), too few clusters and what follows from them
+// (PairsProfileWarnings), outcomes whose rows a subset chooses by their
+// own value (OutcomeSubsetWarnings), too few clusters and what follows from them
 // (FewClustersWarnings), imputed values no data link to a level
 // (ImputationWarnings).
 func runWarnings(res *Result) []string {
@@ -303,7 +304,7 @@ func runWarnings(res *Result) []string {
 			found[i] = len(or.Data.Categories)
 		}
 	}
-	return slices.Concat(ClusterWarnings(res.Plan), BinaryWarnings(res.Plan, nil), BinaryWarnings(res.Plan, found), PairsProfileWarnings(res.Plan), FewClustersWarnings(res), ImputationWarnings(res))
+	return slices.Concat(ClusterWarnings(res.Plan), BinaryWarnings(res.Plan, nil), BinaryWarnings(res.Plan, found), PairsProfileWarnings(res.Plan), OutcomeSubsetWarnings(res.Plan), FewClustersWarnings(res), ImputationWarnings(res))
 }
 
 // Warnings are the warnings of a sensitivity analysis that ran (none when

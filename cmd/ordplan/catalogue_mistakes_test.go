@@ -570,6 +570,43 @@ func mistakeItems(dir string) []badInput {
 				}
 				w35Imputed(t, dir)
 			}},
+		{id: "W38", name: "a subset condition on the outcome's own column", args: []string{"check", "--no-data"}, code: 0,
+			plan: edit("predictors: [a, b]\n", "subset:\n  - {column: y, at_least: 2}\npredictors: [a, b]\n"),
+			check: func(t *testing.T, dir, out, errs string) {
+				plan := filepath.Join(dir, "W38.yaml")
+				sel := `subset[0] (y >= 2) chooses rows by the value of the outcome y itself: the models describe y only among the rows kept, and choosing rows by the outcome changes in general what the effects are (a cumulative model of every category does not hold among the rows of some of them), so the estimates are not the effects in the population the rows were drawn from. To study a part of that population, choose its rows by another column; to study the outcome among these rows, as meant, read the results as conditional on the selection`
+				want := "warning: " + plan + ": outcomes[0] (y): " + sel + "\n"
+				if !strings.Contains(errs, want) {
+					t.Errorf("check --no-data: want %q in\n%s", want, errs)
+				}
+				if _, e, code := runCLI("check", plan); code != 0 || !strings.Contains(e, want) {
+					t.Errorf("check: exit %d, want %q in\n%s", code, want, e)
+				}
+				warnedInRun(t, plan, filepath.Join(dir, "W38-out"), want, sel+".", sel+".")
+				// A subset on another column is not warned of.
+				b, err := os.ReadFile(plan)
+				if err != nil {
+					t.Fatal(err)
+				}
+				other := filepath.Join(dir, "W38b.yaml")
+				if err := os.WriteFile(other, []byte(strings.Replace(string(b), "column: y, at_least: 2", "column: a, at_least: -1", 1)), 0o644); err != nil {
+					t.Fatal(err)
+				}
+				if _, e, code := runCLI("check", other); code != 0 || strings.Contains(e, "chooses rows by the value of the outcome") {
+					t.Errorf("a subset on a predictor: exit %d\n%s", code, e)
+				}
+				// A category the selection leaves without rows: the refusal
+				// names the condition that chose the rows by the outcome.
+				cats := filepath.Join(dir, "W38c.yaml")
+				if err := os.WriteFile(cats, []byte(strings.Replace(string(b), "  - column: y\n", "  - column: y\n    categories: [1, 2, 3]\n", 1)), 0o644); err != nil {
+					t.Fatal(err)
+				}
+				refusal := `outcomes: y: category "1" is declared but never observed in the `
+				named := ` rows used, which subset[0] (y >= 2) chooses by the outcome's own value`
+				if _, e, code := runCLI("check", cats); code != 1 || !strings.Contains(e, refusal) || !strings.Contains(e, named) {
+					t.Errorf("an unobserved category: exit %d, want %q and %q in\n%s", code, refusal, named, e)
+				}
+			}},
 		{id: "W32", name: "reject_if_sparse counting categories within the values of a numeric column of many values", args: []string{"check"}, code: 0,
 			plan: edit("  - reject_unconverged: true\n", "  - reject_unconverged: true\n  - reject_if_sparse: {smallest_category: 5, within: a}\n"),
 			check: func(t *testing.T, dir, out, errs string) {

@@ -307,7 +307,9 @@ func warnUnedited(p *plan.Plan, stderr io.Writer) {
 // tests are made for several boundaries (runner.BinaryWarnings) and each
 // categorical predictor held at its reference level in pairs of levels at
 // the profile because the profile gives it no level
-// (runner.PairsProfileWarnings); the command goes on.
+// (runner.PairsProfileWarnings) and each outcome whose rows a subset
+// condition chooses by the outcome's own value
+// (runner.OutcomeSubsetWarnings); the command goes on.
 func warnPlan(p *plan.Plan, stderr io.Writer) {
 	for _, w := range runner.ClusterWarnings(p) {
 		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
@@ -316,6 +318,9 @@ func warnPlan(p *plan.Plan, stderr io.Writer) {
 		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
 	}
 	for _, w := range runner.PairsProfileWarnings(p) {
+		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
+	}
+	for _, w := range runner.OutcomeSubsetWarnings(p) {
 		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
 	}
 }
