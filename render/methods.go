@@ -760,8 +760,11 @@ func termTestsMethods(r *runner.Result, or *runner.OutcomeResult, inf plan.Infer
 	default:
 		s = append(s, "Each term of the chosen model was tested by a Wald test that all its slopes are 0 and by a likelihood-ratio test against the chosen model refitted without the term on the same rows.")
 	}
-	if slices.ContainsFunc(or.TermTests, func(tt runner.TermTest) bool { return len(tt.With) > 0 }) {
+	if slices.ContainsFunc(or.TermTests, func(tt runner.TermTest) bool { return len(tt.With) > 0 && tt.Column == nil }) {
 		s = append(s, "A term that takes part in an interaction was tested together with every interaction containing it, and each interaction on its own.")
+	}
+	if slices.ContainsFunc(or.TermTests, func(tt runner.TermTest) bool { return tt.Column != nil }) {
+		s = append(s, "A data column that makes several terms was also tested as a whole: every term reading it, with every interaction containing one, together.")
 	}
 	for _, tt := range or.TermTests {
 		if tt.Bound != "" {

@@ -375,7 +375,7 @@ func tableFiles(r *runner.Result, or *runner.OutcomeResult) []csvFile {
 		return out
 	}
 	if len(or.TermTests) > 0 {
-		about := "the Wald and likelihood-ratio tests of each term of the chosen model (tested_with: the interactions containing the term, tested with it; restricted_model: the refit without them; note: why a test was not computed)"
+		about := "the Wald and likelihood-ratio tests of each term of the chosen model (tested_with: the interactions containing the term, tested with it, or for a row column COL every term reading that data column; restricted_model: the refit without them; note: why a test was not computed)"
 		if imputed {
 			about = strings.TrimSuffix(about, ")") + "; on imputed data f is the pooled F statistic on df and df2 degrees of freedom, df2 inf when infinite, p from that F distribution)"
 		}

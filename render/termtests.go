@@ -28,7 +28,7 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		return
 	}
 	d.h(4, "Tests of each term")
-	d.p("Is each term associated with the outcome at all, given the other terms? For each term two tests of the hypothesis that all its slopes in the chosen model, %s, are 0%s: the Wald test, from the estimates and the model's standard errors, and the likelihood-ratio test, which compares the chosen model with the same model (comparison, link, effect structure of every other column) fitted without the term on the same rows. A term inside an interaction is tested together with every interaction containing it (column Tested with): its own slopes alone would measure its effect only where the other terms of the interaction are 0, which depends on their coding and centring; the interaction itself is tested alone. A constrained column that is the only column of its constraint group is tested by its effects at every boundary (the group's common factor goes with it). Each constraint group of several columns is also tested as a whole (its columns, named in column Tested with), unless a term's test already drops exactly its columns.", or.Chosen.ID, everyBoundary(or))
+	d.p("Is each term associated with the outcome at all, given the other terms? For each term two tests of the hypothesis that all its slopes in the chosen model, %s, are 0%s: the Wald test, from the estimates and the model's standard errors, and the likelihood-ratio test, which compares the chosen model with the same model (comparison, link, effect structure of every other column) fitted without the term on the same rows. A term inside an interaction is tested together with every interaction containing it (column Tested with): its own slopes alone would measure its effect only where the other terms of the interaction are 0, which depends on their coding and centring; the interaction itself is tested alone. A constrained column that is the only column of its constraint group is tested by its effects at every boundary (the group's common factor goes with it). Each constraint group of several columns is also tested as a whole (its columns, named in column Tested with), unless a term's test already drops exactly its columns.%s", or.Chosen.ID, everyBoundary(or), columnTestsText(or))
 	wald, lr := inf.WantsTermWald(), inf.WantsTermLR()
 	switch {
 	case !lr:
@@ -53,6 +53,8 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		switch {
 		case tt.Group != nil:
 			with = "its columns " + strings.Join(tt.Columns, ", ")
+		case tt.Column != nil:
+			with = "every term reading it: " + strings.Join(tt.With, ", ")
 		case len(tt.With) > 0:
 			with = strings.Join(tt.With, ", ")
 		}
@@ -128,6 +130,25 @@ func writeTermTests(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	if s := constrainedTermTests(or); s != "" {
 		d.p("**Constrained effects in %s:** %s. Their Wald statistics depend on the parameterization of the constraint%s.", or.Chosen.ID, s, robustRead)
 	}
+}
+
+// columnTestsText says, after the tests' description, why a data column
+// that makes several terms is tested as a whole; "" when none does.
+func columnTestsText(or *runner.OutcomeResult) string {
+	var cols, rows []string
+	for _, tt := range or.TermTests {
+		if tt.Column != nil {
+			cols, rows = append(cols, mdText(*tt.Column)), append(rows, mdText(tt.Term))
+		}
+	}
+	if len(cols) == 0 {
+		return ""
+	}
+	row := "the row " + rows[0] + " tests"
+	if len(rows) > 1 {
+		row = "the rows " + words.AndList(rows) + " test"
+	}
+	return fmt.Sprintf(" Terms made of the same data column (%s) cannot change one with the others held fixed, so the test of each asks only what it adds to the others, not whether the column matters: %s every term reading the column, with every interaction containing one, together; read it for the association of the column with the outcome.", words.AndList(cols), row)
 }
 
 // chanceTermsText says how the tests of the chosen model's terms read

@@ -13,7 +13,7 @@ import (
 // another outcome's column, is not.
 func TestOutcomeSubsetWarnings(t *testing.T) {
 	p := &plan.Plan{Path: "p.yaml",
-		Outcomes:   []plan.Outcome{{Column: "y"}, {Column: "v"}},
+		Outcomes: []plan.Outcome{{Column: "y"}, {Column: "v"}},
 		Subset: []data.Condition{
 			{Column: "age", Op: ">=", Number: 18, Key: "subset[0]"},
 			{Column: "y", Op: "not_in", Values: []string{"r4"}, Key: "subset[1]"},

@@ -6,6 +6,7 @@ import (
 	"strings"
 
 	"ordplan/plan"
+	"ordplan/runner/design"
 	"ordplan/runner/fit"
 )
 
@@ -37,6 +38,13 @@ type TermTest struct {
 	// (its columns, not a term; "" for the plan's single group, which has
 	// no name); absent for a term's test.
 	Group *string `json:"constraint_group,omitempty"`
+	// Column names the data column a test of every term reading it tests
+	// (a column that makes two or more terms, such as log(x) and sqrt(x):
+	// each term's own test holds the other fixed, so only this one asks
+	// whether the column is associated with the outcome); With then lists
+	// those terms and every interaction containing one. Absent for a
+	// term's test.
+	Column *string `json:"data_column,omitempty"`
 	// Bound says why the tests' degrees of freedom exceed the quantities
 	// set to 0, when they do: the columns make up a whole constraint
 	// group (fit.NoEffect.DF), and the p-values are upper bounds.
@@ -51,17 +59,24 @@ type termScope struct {
 	with    []string
 	columns []string
 	group   *string
+	column  *string
 }
 
 // termScopes lists the term tests of an outcome, in term order: each term
 // with the interactions containing it (containingInteractions); then
-// each constraint group of several columns of the chosen model, in its
-// order, whose columns are not those of a term's test.
+// each data column that makes several terms, with every term reading it
+// (columnScopes); then each constraint group of several columns of the
+// chosen model, in its order, whose columns are not those of a term's
+// test.
 func termScopes(or *OutcomeResult) []termScope {
 	var out []termScope
+	dz := or.Design
+	if dz != nil && len(dz.Terms) != len(or.Terms) {
+		dz = nil
+	}
 	for i, t := range or.Terms {
 		sc := termScope{term: t.Name, columns: slices.Clone(t.Columns)}
-		if dz := or.Design; dz != nil && len(dz.Terms) == len(or.Terms) {
+		if dz != nil {
 			for _, j := range containingInteractions(dz, i) {
 				sc.with = append(sc.with, or.Terms[j].Name)
 				sc.columns = append(sc.columns, or.Terms[j].Columns...)
@@ -70,6 +85,9 @@ func termScopes(or *OutcomeResult) []termScope {
 		out = append(out, sc)
 	}
 	terms := len(out)
+	if dz != nil {
+		out = append(out, columnScopes(dz)...)
+	}
 	for _, g := range or.Chosen.Spec.Groups {
 		same := func(sc termScope) bool {
 			return len(sc.columns) == len(g.Predictors) && !slices.ContainsFunc(g.Predictors, func(c string) bool { return !slices.Contains(sc.columns, c) })
@@ -82,6 +100,41 @@ func termScopes(or *OutcomeResult) []termScope {
 	}
 	return out
 }
+
+// columnScopes are the tests of the data columns that make two or more
+// terms of dz (not interactions), in the order of the columns: each
+// drops every term reading the column and every interaction containing
+// one of them, so that it asks whether the column is associated with the
+// outcome at all, as a term's test does for a column that makes one term
+// (a polynomial or spline is one term, tested whole already).
+func columnScopes(dz *design.Design) []termScope {
+	var out []termScope
+	for s, src := range dz.Sources {
+		var reading []int
+		for k, t := range dz.Terms {
+			if t.Kind != design.KindInteraction && t.Source == s {
+				reading = append(reading, k)
+			}
+		}
+		if len(reading) < 2 {
+			continue
+		}
+		name := src.Name
+		sc := termScope{term: ColumnLabel(name), column: &name}
+		for k, t := range dz.Terms {
+			if slices.Contains(reading, k) || t.Kind == design.KindInteraction && slices.ContainsFunc(baseTerms(dz, k), func(b int) bool { return slices.Contains(reading, b) }) {
+				sc.with = append(sc.with, t.Name)
+				sc.columns = append(sc.columns, t.Columns...)
+			}
+		}
+		out = append(out, sc)
+	}
+	return out
+}
+
+// ColumnLabel is how the tests of each term name the test of every term
+// reading one data column: "column x" (no term name holds a space).
+func ColumnLabel(name string) string { return "column " + name }
 
 // GroupLabel is how the tests of each term name the test of a whole
 // constraint group: "constraint group NAME", or "the constraint group"
@@ -129,7 +182,10 @@ func without(f *FitEntry, sc termScope) *FitEntry {
 		}
 	}
 	name := sc.term
-	if len(sc.with) > 0 {
+	switch {
+	case sc.column != nil:
+		name += " (" + strings.Join(sc.with, ", ") + ")"
+	case len(sc.with) > 0:
 		name += " and " + strings.Join(sc.with, ", ")
 	}
 	return &FitEntry{ID: f.ID + " without " + name, Approach: f.Approach, Effects: f.Effects, Link: f.Link, Spec: spec, Auxiliary: true}
@@ -170,7 +226,7 @@ func startTermTests(an *Analysis, or *OutcomeResult, wald func(*fit.NoEffect) fi
 	out := make([]TermTest, len(scopes))
 	refits := make([]*FitEntry, len(scopes))
 	for i, sc := range scopes {
-		tt := TermTest{Term: sc.term, With: sc.with, Columns: sc.columns, Group: sc.group}
+		tt := TermTest{Term: sc.term, With: sc.with, Columns: sc.columns, Group: sc.group, Column: sc.column}
 		ne, err := res.NoEffectOf(sc.columns)
 		if err != nil {
 			tt.Wald, tt.LR = missingTest(fit.TestWald, err.Error()), missingTest(fit.TestLR, err.Error())

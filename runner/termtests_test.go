@@ -475,3 +475,76 @@ func TestTermTestsChosenByPlan(t *testing.T) {
 		}
 	}
 }
+
+// TestColumnTestAgainstGlm: a data column that makes two terms (exposure
+// and its logarithm) is also tested as a whole, both terms together, and
+// with two categories the cumulative logit model is logistic regression,
+// so that test must be base R's: the difference of the deviances of glm's
+// y ~ 1 and y ~ exposure + log(exposure), and b' V^-1 b over both slopes;
+// each term's own test stays the test of it alone. Data: pneumoconiosis in
+// coal miners (Ashford 1959; testdata/reference/pneumo.csv), normal
+// against mild or severe; script runner/testdata/rcheck/columntest.R.
+func TestColumnTestAgainstGlm(t *testing.T) {
+	rscript.Require(t)
+	dir := t.TempDir()
+	raw, err := os.ReadFile(refdata.Path("pneumo.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b strings.Builder
+	b.WriteString("y,exposure,count\n")
+	for _, l := range strings.Split(strings.TrimSpace(string(raw)), "\n")[1:] {
+		f := strings.Split(l, ",")
+		y := "1"
+		if f[3] == "1" {
+			y = "0"
+		}
+		fmt.Fprintf(&b, "%s,%s,%s\n", y, f[1], f[4])
+	}
+	if err := os.WriteFile(filepath.Join(dir, "pneumo2.csv"), []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	p := planIn(t, dir, `version: 1
+title: pneumoconiosis, two categories
+data: {file: pneumo2.csv, weights: count}
+outcomes: [{column: y}]
+predictors: [exposure, {name: lexp, column: exposure, log: {}}]
+models: {approaches: [cumulative], effects: [parallel]}
+tests: {parallel_lines: []}
+rules:
+  - choose: {by: aic}
+`)
+	or := runPlan(t, p, 0).Outcomes[0]
+	vals := rscript.Run(t, dir, "testdata/rcheck/columntest.R")
+	want := map[string]string{"exposure": "exposure", "lexp": "lexp", "column exposure": "column"}
+	if len(or.TermTests) != 3 {
+		t.Fatalf("%d term tests: %+v", len(or.TermTests), or.TermTests)
+	}
+	for _, tt := range or.TermTests {
+		name, ok := want[tt.Term]
+		if !ok {
+			t.Fatalf("a test of %q", tt.Term)
+		}
+		for _, c := range []struct {
+			kind string
+			got  fit.Test
+		}{{"lr", tt.LR}, {"wald", tt.Wald}} {
+			r := vals.Get(t, c.kind+"_"+name)
+			if !c.got.OK {
+				t.Errorf("%s %s: not computed: %s", tt.Term, c.kind, c.got.Reason)
+				continue
+			}
+			if d := math.Abs(c.got.Chi2 - r[0]); !(d <= 1e-6*math.Max(1, r[0])) || c.got.DF != int(r[1]) {
+				t.Errorf("%s %s: chi2(%d) = %.10g, glm chi2(%g) = %.10g", tt.Term, c.kind, c.got.DF, c.got.Chi2, r[1], r[0])
+			}
+			t.Logf("%s %s: chi2(%d) = %.8f, glm %.8f", tt.Term, c.kind, c.got.DF, c.got.Chi2, r[0])
+		}
+	}
+	col := or.TermTests[2]
+	if col.Column == nil || *col.Column != "exposure" || strings.Join(col.With, ",") != "exposure,lexp" || strings.Join(col.Columns, ",") != "exposure,lexp" {
+		t.Errorf("the column's test is %+v", col)
+	}
+	if or.TermTests[0].Column != nil || len(or.TermTests[0].With) != 0 {
+		t.Errorf("the term exposure is tested as %+v", or.TermTests[0])
+	}
+}
