@@ -131,8 +131,11 @@ func (d *decoder) decodeTerm(n *yaml.Node, path string) (design.TermSpec, bool) 
 		if m.get("column") != nil {
 			d.errAt(m.at("interact"), "a term is either a column (column: ...) or an interaction (interact: [...]), not both")
 		}
+		named := len(d.errs)
 		list, ok := d.names(v, m.at("interact"))
-		if ok && len(list) < 2 {
+		// A name listed twice is said once, as such (interact: [z, z]),
+		// not also as an interaction of one term.
+		if ok && len(list) < 2 && len(d.errs) == named {
 			d.errorf(deref(v), m.at("interact"), "an interaction needs at least two terms, got %d", len(list))
 		}
 		t.Interact = list
