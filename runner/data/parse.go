@@ -152,7 +152,7 @@ func parseCode(cell string, mark byte) (int64, string) {
 				return c, ""
 			}
 		}
-		return 0, "value " + quoteCell(cell) + " is not an integer category code (declare the categories to use text labels)"
+		return 0, "value " + quoteCell(cell) + " is not an integer category code (declare the categories to use text labels: outcomes[].categories; ordplan fit: --categories)"
 	}
 	return c, ""
 }
