@@ -84,7 +84,7 @@ func PowerOutputs(pr *simulate.PowerResult, reg *lock.Status) (map[string][]byte
 	d.list([]string{
 		"Power is computed under the stated assumptions only: other category proportions or effects, " + corr + ", " + missingLimit(pr) + " or " + clusterLimit(pr) + " give other numbers.",
 		"A hypothesis counts as rejected only in the model the rules chose; a replicate whose chosen model does not have the hypothesis's parameters, or where no model was chosen, counts as not rejected (the column \"not testable\").",
-		"The share of replicates choosing each model shows whether the rules find the structure that generated the data: a " + pr.Generator + " model with the stated parallel and nonparallel effects.",
+		"The share of replicates choosing each model shows whether the rules find the structure that generated the data: a " + pr.Generator + " model with the effects the plan's assumptions state, parallel or, where stated, nonparallel (each outcome's structure is named above its table of models).",
 	})
 	page, err := d.html(title)
 	if err != nil {
