@@ -1829,6 +1829,23 @@ func catalogue(dir string) (items []badInput) {
 				withColumns(t, dir, "twoforms.csv", "gr\u00f6\u00dfe,gro\u0308\u00dfe", func(i int, f []string) string { return f[1] + "," + f[2] })
 			},
 			want: []string{"ordplan: twoforms.csv:1: header: column names \"gr\u00f6\u00dfe\" (column 8) and \"gro\u0308\u00dfe\" (column 9) are one name written in two Unicode forms (one with composed letters, one with letters and combining accents), which a plan cannot tell apart: rename one\n"}},
+		{id: "D54", name: "a quote inside a field of a column the plan does not read (a tab-separated export)", args: fitArgs(d("inches.tsv"), "--delimiter", "tab", "--predictors", "a"), code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				withColumns(t, dir, "inches.csv", "note", func(i int, f []string) string {
+					if i == 6 {
+						return `pipe of 12" bore`
+					}
+					return "ok"
+				})
+				b, err := os.ReadFile(filepath.Join(dir, "inches.csv"))
+				if err != nil {
+					t.Fatal(err)
+				}
+				os.WriteFile(filepath.Join(dir, "inches.tsv"), []byte(strings.ReplaceAll(string(b), ",", "\t")), 0o644)
+			},
+			// It said only: inches.tsv:8: malformed CSV at character 50:
+			// bare " in non-quoted-field.
+			want: []string{`ordplan: inches.tsv:8: column "note": malformed CSV at character `, `: bare " in non-quoted-field; the field is: pipe of 12" bore ; a quote is read inside a field only when the whole field is enclosed in quotes and the quote is written twice, as "pipe of 12"" bore" ; correct the field, or remove the quote` + "\n"}},
 		{id: "D32", name: "missing values in a column the subset reads, with imputation", args: []string{"run"}, setup: subsetAges,
 			plan: edit("  file: d.csv\n", "  file: subna.csv\n  missing: impute\n  missing_values: [\"NA\", \"-9\"]\n", "[a, b]", "[a, b, age]") + "subset:\n  - {column: age, at_least: 18}\n", code: 0,
 			check: func(t *testing.T, dir, out, errs string) {

@@ -49,8 +49,15 @@ func TestReadErrors(t *testing.T) {
 			`t.csv:3: row has 2 fields but the header has 3`},
 		{"ragged long row", "y,a,b\n1,2,3\n2,3,4\n1,2,3,4\n", opts, 4, "",
 			`t.csv:4: row has 4 fields but the header has 3`},
-		{"bad quote", "y,a,b\n1,2,3\n1,x\"y,3\n", opts, 3, "",
-			`t.csv:3: malformed CSV at character 4: bare " in non-quoted-field`},
+		{"bad quote", "y,a,b\n1,2,3\n1,x\"y,3\n", opts, 3, "a",
+			`t.csv:3: column "a": malformed CSV at character 4: bare " in non-quoted-field; the field is: x"y ; a quote is read inside a field only when the whole field is enclosed in quotes and the quote is written twice, as "x""y" ; correct the field, or remove the quote`},
+		// A quote in a column no plan reads, as tab-separated exports write
+		// inches in a free-text column: the column and field are named (it
+		// said only the line and the character).
+		{"bare quote in an unused column", "y\ta\tnote\n1\t2\tok\n2\t3\ta 12\" pipe\n", Options{Outcome: "y", Predictors: []string{"a"}, Dialect: Dialect{Delimiter: '\t'}}, 3, "note",
+			`t.csv:3: column "note": malformed CSV at character 9: bare " in non-quoted-field; the field is: a 12" pipe ; a quote is read inside a field only when the whole field is enclosed in quotes and the quote is written twice, as "a 12"" pipe" ; correct the field, or remove the quote`},
+		{"text after a quoted field, after a quoted delimiter", "y,note,a\n1,ok,2\n2,\"a,b\" c,3\n", Options{Outcome: "y", Predictors: []string{"a"}}, 3, "note",
+			`t.csv:3: column "note": malformed CSV at character 7: extraneous or missing " in quoted-field; the field is: "a,b" c ; a quote is read inside a field only when the whole field is enclosed in quotes and the quote is written twice, as """a,b"" c" ; correct the field, or remove the quote`},
 		{"quote not closed", "y,a,b\n1,2,3\n1,\"2,3\n2,3,4\n1,2,3\n", opts, 3, "",
 			`t.csv:3: malformed CSV: a quoted field of the row that starts on this line is not closed where it should be (an extraneous or missing " in a quoted field), and the row runs on to line 5: check the quotes of this row`},
 		{"non-numeric predictor", "y,a,b\n1,2,3\n2,abc,4\n", opts, 3, "a",

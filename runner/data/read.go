@@ -54,6 +54,9 @@ func ReadStream(r io.Reader, name string, opt Options) (*Dataset, error) {
 		name = "<input>"
 	}
 	rd := &reader{file: name, opt: opt, missing: opt.missingSet()}
+	if rs, ok := r.(io.ReadSeeker); ok {
+		rd.again = rs
+	}
 	return rd.read(r)
 }
 
@@ -113,6 +116,9 @@ type reader struct {
 	cols    []usedCol
 	width   int
 	raw     []byte // the whole input, when read before (readBytes)
+	// again is the input of ReadStream when it can be read again from its
+	// start, for the text of a line an error names (quoteField).
+	again io.ReadSeeker
 	// numCodes: by column read as numbers, its missing-value markers that
 	// are numbers (readNumbers; read only once the rows are read)
 	numCodes map[string][]float64
@@ -157,6 +163,7 @@ func (r *reader) csvErr(err error, rec []string) *Error {
 		}
 		e := r.fail(pe.Line, "", "malformed CSV at character %d: %v", pe.Column, pe.Err)
 		e.Err = err
+		r.quoteField(e, pe)
 		return e
 	}
 	return &Error{File: r.file, Msg: "cannot read file: " + osReason(err), Err: err}
@@ -449,4 +456,90 @@ func (r *reader) start(in io.Reader) error {
 	cr.TrimLeadingSpace = trimsLeadingSpace(cr.Comma)
 	r.cr = cr
 	return nil
+}
+
+// quoteField adds to e, the error of a quote out of place on a data line
+// (a bare quote inside a field, or text after a quoted field's closing
+// quote), the column and the field it is in and how to write it: the
+// quote may be in a column no plan reads (a note of 12" in a free-text
+// column, as tab-separated exports often write one), which the message
+// said nothing of.
+func (r *reader) quoteField(e *Error, pe *csv.ParseError) {
+	if pe.Line <= r.headerLine || pe.StartLine != pe.Line || len(r.headerNames) == 0 ||
+		!errors.Is(pe.Err, csv.ErrBareQuote) && !errors.Is(pe.Err, csv.ErrQuote) {
+		return
+	}
+	var in io.Reader
+	switch {
+	case r.raw != nil:
+		in = bytes.NewReader(r.raw)
+	case r.again != nil:
+		if _, err := r.again.Seek(0, io.SeekStart); err != nil {
+			return
+		}
+		in = r.again
+	default:
+		return
+	}
+	text := lineOf(in, pe.Line)
+	k, field, ok := fieldAt(text, pe.Column-1, byte(r.opt.Dialect.delim()))
+	if !ok || k >= len(r.headerNames) {
+		return
+	}
+	if len(field) > maxShown || strings.ContainsFunc(field, unicode.IsControl) {
+		return
+	}
+	e.Column = r.headerNames[k]
+	// The field as written, not as a quoted text: its quotes are the
+	// point.
+	e.Msg += fmt.Sprintf("; the field is: %s ; a quote is read inside a field only when the whole field is enclosed in quotes and the quote is written twice, as %s ; correct the field, or remove the quote", field, `"`+strings.ReplaceAll(field, `"`, `""`)+`"`)
+}
+
+// lineOf is line n (1-based) of the text, without its line end.
+func lineOf(in io.Reader, n int) string {
+	br := bufio.NewReader(in)
+	for ; n > 1; n-- {
+		if _, err := br.ReadSlice('\n'); err == bufio.ErrBufferFull {
+			n++ // a long line: read on
+		} else if err != nil {
+			return ""
+		}
+	}
+	line, _ := br.ReadString('\n')
+	return strings.TrimSuffix(strings.TrimSuffix(line, "\n"), "\r")
+}
+
+// fieldAt finds the field of a CSV line that byte at lies in: its index
+// and its text as written (quotes kept). A field that starts with a quote
+// runs to its closing quote, the quotes doubled inside it read as one.
+func fieldAt(line string, at int, delim byte) (int, string, bool) {
+	if at < 0 || at >= len(line) {
+		return 0, "", false
+	}
+	start, k := 0, 0
+	for start <= len(line) {
+		end := start
+		if end < len(line) && line[end] == '"' {
+			end++
+			for end < len(line) {
+				if line[end] == '"' {
+					if end+1 < len(line) && line[end+1] == '"' {
+						end += 2
+						continue
+					}
+					end++
+					break
+				}
+				end++
+			}
+		}
+		for end < len(line) && line[end] != delim {
+			end++
+		}
+		if at < end || end == len(line) {
+			return k, strings.TrimSpace(line[start:end]), true
+		}
+		start, k = end+1, k+1
+	}
+	return 0, "", false
 }
