@@ -313,14 +313,23 @@ func modelRow(f *runner.FitEntry) []string {
 	if f.Verdict == "chosen" {
 		id = md("**" + mdText(id) + "** (chosen)")
 	}
+	verdict := f.Verdict
+	switch {
+	case f.RejectedRule > 0 && f.Verdict == "chosen":
+		// The plan's fallback, every candidate rejected.
+		verdict = fmt.Sprintf("chosen as the fallback (rejected by rule %d)", f.RejectedRule)
+	case f.RejectedRule > 0:
+		// Which rule, as the decision log numbers them: its table says why.
+		verdict += fmt.Sprintf(" (rule %d)", f.RejectedRule)
+	}
 	if f.Result == nil {
-		return []string{id, "not fitted: " + f.Err, "", "", "", "", "", f.Verdict}
+		return []string{id, "not fitted: " + f.Err, "", "", "", "", "", verdict}
 	}
 	res := f.Result
 	if !res.MaximumKnown() {
-		return []string{id, string(res.Status), "no finite value", fmt.Sprint(res.NParams), "", "", "", f.Verdict}
+		return []string{id, string(res.Status), "no finite value", fmt.Sprint(res.NParams), "", "", "", verdict}
 	}
-	return []string{id, string(res.Status), numfmt.Fixed(res.LogLik, 3), fmt.Sprint(res.NParams), numfmt.Fixed(res.AIC, 2), numfmt.Fixed(res.BIC, 2), fmt.Sprint(res.NegativeRows), f.Verdict}
+	return []string{id, string(res.Status), numfmt.Fixed(res.LogLik, 3), fmt.Sprint(res.NParams), numfmt.Fixed(res.AIC, 2), numfmt.Fixed(res.BIC, 2), fmt.Sprint(res.NegativeRows), verdict}
 }
 
 // auxiliaryNote explains the fits the plan's tests need besides the

@@ -103,7 +103,7 @@ func (env *ruleEnv) apply() {
 			keep, why := env.judge(r, f, still)
 			verdicts[f] = Verdict{Model: f.ID, Kept: keep, Reason: why, Numbers: env.taken()}
 			if !keep {
-				f.Verdict = "rejected"
+				f.Verdict, f.RejectedRule = "rejected", i+1
 				f.Rejected = fmt.Sprintf("%s (rule at line %d): %s", r.Kind, r.Line, why)
 			}
 		}
@@ -1035,7 +1035,7 @@ func (env *ruleEnv) choose(r plan.Rule, alive []*FitEntry, ro *RuleOutcome) {
 		c, note := env.criterion(r.By, f)
 		if math.IsNaN(c) {
 			ro.Verdicts = append(ro.Verdicts, Verdict{Model: f.ID, Kept: false, Reason: fmt.Sprintf("no %s: %s", by, note)})
-			f.Verdict, f.Rejected = "rejected", fmt.Sprintf("%s (rule at line %d): no %s (%s)", r.Kind, r.Line, by, note)
+			f.Verdict, f.Rejected, f.RejectedRule = "rejected", fmt.Sprintf("%s (rule at line %d): no %s (%s)", r.Kind, r.Line, by, note), len(or.Rules)
 			continue
 		}
 		vals[f] = c

@@ -155,6 +155,9 @@ type FitEntry struct {
 	Err          string // the fit could not be attempted (bad input for this model)
 	Verdict      string // kept, rejected or chosen (candidates only)
 	Rejected     string // the rule that rejected it, with its numbers
+	// RejectedRule is the number of the rule that rejected it, 1-based
+	// in plan order as the decision log numbers the rules (0: no rule did).
+	RejectedRule int
 	// Pooled holds Rubin's rules for this fit on imputed data (nil
 	// otherwise): Result then has the pooled estimates and total covariance.
 	Pooled *impute.Pooled `json:"-"`

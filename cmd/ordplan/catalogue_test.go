@@ -2193,6 +2193,13 @@ func catalogue(dir string) (items []badInput) {
 					!strings.Contains(string(dec), `"fallback": true`) {
 					t.Errorf("the fallback is not marked in the report or decisions.json")
 				}
+				// The table of candidate models names the rule that
+				// rejected each, the fallback's too.
+				for _, want := range []string{"| chosen as the fallback (rejected by rule 1) |", "| rejected (rule 1) |"} {
+					if !strings.Contains(string(rep), want) {
+						t.Errorf("report.md lacks %q", want)
+					}
+				}
 			}},
 		{id: "M1", name: "constant predictor", args: fitArgs(d("d.csv"), "--predictors", "a,c"), code: 1,
 			want: []string{`d.csv: --predictors item 2: term "c" is constant (every row used has 5): it cannot be estimated alongside the cutpoints; remove it`},
