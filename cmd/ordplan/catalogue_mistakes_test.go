@@ -77,11 +77,11 @@ func mistakeItems(dir string) []badInput {
 			check: noFolder("C14-out")},
 		{id: "C14", name: "a command given two plans", args: []string{"check", "a.yaml"}, plan: goodPlan, code: 2, lines: true,
 			want: []string{`ordplan check: unexpected argument "`, `" after the plan a.yaml: the command takes one plan file` + "\nusage: ordplan check PLAN.yaml"}},
-		{id: "D54", name: "ordplan fit on an outcome of text labels without --categories", args: fitArgs(filepath.Join(dir, "D54.csv"), "--predictors", "a"), code: 1,
+		{id: "D55", name: "ordplan fit on an outcome of text labels without --categories", args: fitArgs(filepath.Join(dir, "D55.csv"), "--predictors", "a"), code: 1,
 			setup: func(t *testing.T, dir, id string) {
-				os.WriteFile(filepath.Join(dir, "D54.csv"), []byte("y,a\nsame,1\nbetter,2\nworse,3\n"), 0o644)
+				os.WriteFile(filepath.Join(dir, "D55.csv"), []byte("y,a\nsame,1\nbetter,2\nworse,3\n"), 0o644)
 			},
-			want: []string{`ordplan: D54.csv:2: column "y": value "same" is not an integer category code (declare the categories to use text labels: outcomes[].categories; ordplan fit: --categories)` + "\n"}},
+			want: []string{`ordplan: D55.csv:2: column "y": value "same" is not an integer category code (declare the categories to use text labels: outcomes[].categories; ordplan fit: --categories)` + "\n"}},
 		{id: "O14", name: "a flag given twice", args: []string{"power", "--n", "100", "--out", filepath.Join(dir, "O14-power"), "--n", "200"}, plan: edit() + assumed("{a: 0.2}", ""), code: 2,
 			want:  []string{`ordplan power: --n is given twice ("100", then "200"); give each flag once (several items go in one value, comma separated: --n 100,200)`},
 			check: noFolder("O14-power")},
