@@ -207,6 +207,36 @@ func termItems(dir string) []badInput {
 						t.Errorf("%s after heavy row loss: exit %d:\n%s\nwant exit 1 and %q, then %q", args[0], code, e, want, advice)
 					}
 				}
+				// z missing in the 20 rows of south alone (fewer rows
+				// dropped than kept): the refusal says that the level's
+				// rows were dropped, and for which column, before its
+				// advice; the reference level the same.
+				b.Reset()
+				for k, l := range strings.Split(strings.TrimSpace(string(src)), "\n") {
+					switch {
+					case k == 0:
+						l += ",z"
+					case (k-1)%3 == 2:
+						l += ","
+					default:
+						l += fmt.Sprintf(",%d", k%4)
+					}
+					b.WriteString(l + "\n")
+				}
+				os.WriteFile(filepath.Join(dir, "catsouth.csv"), []byte(b.String()), 0o644)
+				pl = filepath.Join(dir, "T6south.yaml")
+				os.WriteFile(pl, []byte(termsEdit("file: cat.csv", "file: catsouth.csv", "[site, x]", "[site, x, z]")), 0o644)
+				want = `level "south" is declared but occurs in no row used. It occurs in 20 rows of the data, each dropped for a missing value (z: 20)` + advice
+				for _, args := range [][]string{{"check", pl}, {"run", pl, "--out", filepath.Join(dir, "T6south-out"), "--quiet"},
+					fitArgs(filepath.Join(dir, "catsouth.csv"), "--predictors", "site|levels=north/east/south,x,z")} {
+					if _, e, code := runCLI(args...); code != 1 || !strings.Contains(e, want) {
+						t.Errorf("%s, the rows of south dropped: exit %d:\n%s\nwant %q", args[0], code, e, want)
+					}
+				}
+				ref := `the reference level "south" occurs in no row used. It occurs in 20 rows of the data, each dropped for a missing value (z: 20). If these are the rows meant, choose another reference`
+				if _, e, code := runCLI(fitArgs(filepath.Join(dir, "catsouth.csv"), "--predictors", "site|levels=north/east/south|ref=south,x,z")...); code != 1 || !strings.Contains(e, ref) {
+					t.Errorf("fit, the reference's rows dropped: exit %d:\n%s\nwant %q", code, e, ref)
+				}
 			}},
 		{id: "T7", name: "declared level never observed, dropped as the plan says", args: []string{"run"}, setup: writeTermsData,
 			plan: termsEdit("[north, east, south]}", "[north, east, south, west], unobserved: drop}"), code: 0,

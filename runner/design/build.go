@@ -86,6 +86,9 @@ type Error struct {
 	// rows used (a level or the reference that no row has, one level
 	// alone), which a plan names where it declares them.
 	Levels bool
+	// Level is the declared level no row used has (the reference or
+	// another), "" for any other problem.
+	Level string
 	// Fix, when set, is what to do about it, written after Msg ("; "); a
 	// refusal that goes on to say why so few rows remain puts it after
 	// that instead (runner's levelsAfterLoss).
@@ -291,7 +294,7 @@ func (d *Design) buildCategorical(t *Term, src Source, v, w []float64, fz *TermR
 		}
 		switch {
 		case name == ref:
-			return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("the reference level %q occurs in no row used", name), Fix: "choose another reference", Levels: true}
+			return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("the reference level %q occurs in no row used", name), Fix: "choose another reference", Levels: true, Level: name}
 		case c.Unobserved == UnobservedDrop:
 			t.Dropped = append(t.Dropped, name)
 			asked := t.Key
@@ -301,7 +304,7 @@ func (d *Design) buildCategorical(t *Term, src Source, v, w []float64, fz *TermR
 			d.Notes = append(d.Notes, fmt.Sprintf("Level %q of %s occurs in no row used; its column was dropped, as asked (%s).", name, src.Name, asked))
 		default:
 			return &Error{Key: t.Key, Column: src.Name, Msg: fmt.Sprintf("level %q is declared but occurs in no row used", name),
-				Fix: "remove it from the levels, or have its column dropped (in a plan unobserved: drop, in ordplan fit |drop)", Levels: true}
+				Fix: "remove it from the levels, or have its column dropped (in a plan unobserved: drop, in ordplan fit |drop)", Levels: true, Level: name}
 		}
 	}
 	if len(keptIdx) < 2 {
