@@ -419,6 +419,13 @@ func TestBadPlans(t *testing.T) {
 			[]string{`report.timestamp: want true or false, got string "yes"`}},
 		{"seed negative", "", "seed: -3\n",
 			[]string{`seed: want a whole number from 0 to 18446744073709551615, got number -3`}},
+		// A whole number written as a decimal or with an exponent, which
+		// YAML reads as a float: the message said "want a whole number,
+		// got number 1e3" and no more.
+		{"seed with an exponent", "", "seed: 1e3\n",
+			[]string{`seed: want a whole number from 0 to 18446744073709551615, got number 1e3 (a whole number, written as a decimal or with an exponent: write it 1000)`}},
+		{"version as a decimal", "version: 1", "version: 1.0",
+			[]string{`version: want a whole number, got number 1.0 (a whole number, written as a decimal or with an exponent: write it 1)`}},
 		{"report not a mapping", "", "report: [title]\n",
 			[]string{`bad.yaml:12:9: report: want a mapping with keys title, focus_predictor, panels_by, confidence_level, timestamp; got a list`}},
 		{"control character", "predictors: [a, b, c]", `predictors: [a, "b\u0007", c]`,

@@ -1,6 +1,7 @@
 package plan
 
 import (
+	"fmt"
 	"math"
 	"strconv"
 
@@ -106,10 +107,25 @@ func (d *decoder) integerWant(n *yaml.Node, path, want string) (int64, bool) {
 	n = deref(n)
 	var v int64
 	if n == nil || n.Kind != yaml.ScalarNode || n.ShortTag() != "!!int" || n.Decode(&v) != nil {
-		d.errorf(n, path, "want %s, got %s%s", want, describe(n), numberTextHint(n))
+		d.errorf(n, path, "want %s, got %s%s%s", want, describe(n), numberTextHint(n), wholeHint(n))
 		return 0, false
 	}
 	return v, true
+}
+
+// wholeHint is what follows the message for a whole number written as a
+// decimal or with an exponent (1000.0, 1e3), which YAML reads as a float
+// and a key taking whole numbers refuses: how to write it. It said "want
+// a whole number, got number 1e3".
+func wholeHint(n *yaml.Node) string {
+	if n == nil || n.Kind != yaml.ScalarNode || n.ShortTag() != "!!float" {
+		return ""
+	}
+	var x float64
+	if n.Decode(&x) != nil || x != math.Trunc(x) || math.Abs(x) >= 1<<63 {
+		return ""
+	}
+	return fmt.Sprintf(" (a whole number, written as a decimal or with an exponent: write it %d)", int64(x))
 }
 
 // numberTextHint is what follows the message for a value that is not a
@@ -127,7 +143,7 @@ func (d *decoder) unsigned(n *yaml.Node, path string) (uint64, bool) {
 	n = deref(n)
 	var v uint64
 	if n == nil || n.Kind != yaml.ScalarNode || n.ShortTag() != "!!int" || n.Decode(&v) != nil {
-		d.errorf(n, path, "want a whole number from 0 to %d, got %s", uint64(math.MaxUint64), describe(n))
+		d.errorf(n, path, "want a whole number from 0 to %d, got %s%s", uint64(math.MaxUint64), describe(n), wholeHint(n))
 		return 0, false
 	}
 	return v, true
