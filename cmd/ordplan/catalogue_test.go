@@ -1459,7 +1459,7 @@ func catalogue(dir string) (items []badInput) {
 		{id: "D4", name: "non-numeric predictor value", args: fitArgs(d("text.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`text.csv:3: column "a": value "abc" is not a number`}},
 		{id: "D5", name: "NaN written as a value", args: fitArgs(d("nan.csv"), "--predictors", "a,b"), code: 1,
-			want: []string{`nan.csv:3: column "a": value "nan" is NaN, not a number (leave the cell empty to mark a missing value)`}},
+			want: []string{`nan.csv:3: column "a": value "nan" is NaN, which is not a number; it looks like a missing-value marker, which is not among the markers in force: to read it as missing, set data.missing_values: ["", "NA", "NaN", ".", "nan"] (the markers in force and it), or list it for this column alone under dictionary.a.missing (ordplan fit: --missing-codes a=nan)`}},
 		{id: "D11", name: "NaN as a missing-value marker", args: fitArgs(d("nantoken.csv"), "--predictors", "a,b"), code: 0,
 			want: []string{"8 rows read, 7 used; 1 of 8 rows dropped for missing values (a: 1)"}},
 		{id: "D6", name: "infinite value", args: fitArgs(d("inf.csv"), "--predictors", "a,b"), code: 1,

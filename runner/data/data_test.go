@@ -71,9 +71,13 @@ func TestReadErrors(t *testing.T) {
 		{"overflow", "y,a,b\n1,2,3\n1,1e999,3\n", opts, 3, "a",
 			`t.csv:3: column "a": value "1e999" is infinite (too large for a number)`},
 		{"literal nan not a token", "y,a,b\n1,nan,3\n", opts, 2, "a",
-			`t.csv:2: column "a": value "nan" is NaN, not a number (leave the cell empty to mark a missing value)`},
+			`t.csv:2: column "a": value "nan" is NaN, which is not a number; it looks like a missing-value marker, which is not among the markers in force: to read it as missing, set data.missing_values: ["", "NA", "NaN", ".", "nan"] (the markers in force and it), or list it for this column alone under dictionary.a.missing (ordplan fit: --missing-codes a=nan)`},
 		{"NaN when tokens exclude it", "y,a,b\n1,NaN,3\n", Options{Outcome: "y", Predictors: []string{"a", "b"}, MissingTokens: []string{""}}, 2, "a",
-			`t.csv:2: column "a": value "NaN" is NaN, not a number (leave the cell empty to mark a missing value)`},
+			`t.csv:2: column "a": value "NaN" is NaN, which is not a number; it looks like a missing-value marker, which is not among the markers in force: to read it as missing, set data.missing_values: ["", "NaN"] (the markers in force and it), or list it for this column alone under dictionary.a.missing (ordplan fit: --missing-codes a=NaN)`},
+		// Markers without the empty cell: it said "leave the cell empty to
+		// mark a missing value", which these markers do not read as one.
+		{"NaN when the markers leave out the empty cell", "y,a,b\n1,NaN,3\n", Options{Outcome: "y", Predictors: []string{"a", "b"}, MissingTokens: []string{"-99"}}, 2, "a",
+			`t.csv:2: column "a": value "NaN" is NaN, which is not a number; it looks like a missing-value marker, which is not among the markers in force: to read it as missing, set data.missing_values: ["-99", "NaN"] (the markers in force and it), or list it for this column alone under dictionary.a.missing (ordplan fit: --missing-codes a=NaN)`},
 		{"non-numeric weight", "y,a,w\n1,2,x\n", Options{Outcome: "y", Weights: "w"}, 2, "w",
 			`t.csv:2: column "w": value "x" is not a number`},
 		{"non-numeric offset", "y,a,o\n1,2,zz\n", Options{Outcome: "y", Offset: "o"}, 2, "o",

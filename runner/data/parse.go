@@ -128,7 +128,7 @@ func parseNumber(cell string) (float64, string) {
 		return 0, "value " + quoteCell(cell) + " is not a number"
 	}
 	if math.IsNaN(v) {
-		return 0, "value " + quoteCell(cell) + " is NaN, not a number (leave the cell empty to mark a missing value)"
+		return 0, "value " + quoteCell(cell) + " is NaN, which is not a number"
 	}
 	if math.IsInf(v, 0) {
 		return 0, "value " + quoteCell(cell) + " is infinite"
