@@ -155,7 +155,7 @@ func writePredictionPanel(d *doc, r *runner.Result, or *runner.OutcomeResult, fi
 	}
 	d.p("Probability of each category under the chosen model when %s %s, with %s. Standard errors, in brackets, are delta-method approximations from the model's covariance matrix.%s",
 		mdCode(pf.focus), span, mdText(pf.heldAt()), na)
-	head := []string{pf.focus}
+	head := []string{pf.axis} // with its unit, as the chart's axis
 	for _, l := range res.Categories {
 		head = append(head, "P("+l+")")
 	}

@@ -220,6 +220,8 @@ func TestPredictedCSVEveryPanel(t *testing.T) {
 	// stacked series' points [y, x] read through their encode.
 	// The axis's title gives the dictionary's unit.
 	hasAll(t, "report.html", string(files["report.html"]), `"encode":{"x":1,"y":0}`, `"type":"value","name":"age (years)"`)
+	// So does the first column of the tables of the same predictions.
+	hasAll(t, "report.md", md, "| age (years) | P(very_unsafe) |")
 	svgs := 0
 	for name, b := range files {
 		if strings.HasSuffix(name, ".svg") && bytes.Contains(b, []byte("Predicted probabilities by age")) {
