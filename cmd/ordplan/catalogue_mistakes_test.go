@@ -82,6 +82,23 @@ func mistakeItems(dir string) []badInput {
 				os.WriteFile(filepath.Join(dir, "D55.csv"), []byte("y,a\nsame,1\nbetter,2\nworse,3\n"), 0o644)
 			},
 			want: []string{`ordplan: D55.csv:2: column "y": value "same" is not an integer category code (declare the categories to use text labels: outcomes[].categories; ordplan fit: --categories)` + "\n"}},
+		{id: "C15", name: "a numeric flag given a number of another kind", args: []string{"power", "--n", "100", "--replicates", "1.5", "--out", filepath.Join(dir, "C15-power")}, plan: edit() + assumed("{a: 0.2}", ""), code: 2, lines: true,
+			want: []string{`invalid value "1.5" for flag -replicates: want a whole number written in digits (not 1.5, 1e3 or 2k)`, "Run 'ordplan power --help' for its flags"},
+			check: func(t *testing.T, dir, out, errs string) {
+				noFolder("C15-power")(t, dir, out, errs)
+				for _, c := range []struct {
+					args []string
+					want string
+				}{
+					{fitArgs(filepath.Join(dir, "d.csv"), "--predictors", "a", "--confidence-level", "95%"), `invalid value "95%" for flag -confidence-level: want a number written in digits, such as 0.05`},
+					{fitArgs(filepath.Join(dir, "d.csv"), "--predictors", "a", "--header-row", "99999999999999999999"), `-header-row: the number is too large for this flag`},
+					{[]string{"worker", "--queue", "nats://127.0.0.1:1", "--ack-wait", "30"}, `invalid value "30" for flag -ack-wait: want a duration with its unit, such as 30s, 5m or 1h`},
+				} {
+					if _, e, code := runCLI(c.args...); code != 2 || !strings.Contains(e, c.want) {
+						t.Errorf("%v: exit %d\n%s", c.args, code, e)
+					}
+				}
+			}},
 		{id: "O14", name: "a flag given twice", args: []string{"power", "--n", "100", "--out", filepath.Join(dir, "O14-power"), "--n", "200"}, plan: edit() + assumed("{a: 0.2}", ""), code: 2,
 			want:  []string{`ordplan power: --n is given twice ("100", then "200"); give each flag once (several items go in one value, comma separated: --n 100,200)`},
 			check: noFolder("O14-power")},

@@ -13,6 +13,7 @@ import (
 	"strconv"
 	"strings"
 	"sync"
+	"time"
 
 	"ordplan/plan"
 	"ordplan/render"
@@ -282,7 +283,31 @@ func (c *countedValue) Set(s string) error {
 		}
 		return nil
 	}
-	return c.Value.Set(s)
+	return numberWanted(c.Value, c.Value.Set(s))
+}
+
+// numberWanted words the flag package's "parse error" and "value out of
+// range" of a numeric flag (--replicates 1.5, --n 1e3, --alpha abc) as
+// the kind of number the flag takes (C15); other errors pass unchanged.
+func numberWanted(v flag.Value, err error) error {
+	g, ok := v.(flag.Getter)
+	if err == nil || !ok || err.Error() != "parse error" && err.Error() != "value out of range" {
+		return err
+	}
+	if err.Error() == "value out of range" {
+		return errors.New("the number is too large for this flag")
+	}
+	switch g.Get().(type) {
+	case int, int64:
+		return errors.New("want a whole number written in digits (not 1.5, 1e3 or 2k)")
+	case uint, uint64:
+		return errors.New("want a whole number of 0 or more written in digits (not 1.5, 1e3 or 2k)")
+	case float64:
+		return errors.New("want a number written in digits, such as 0.05")
+	case time.Duration:
+		return errors.New("want a duration with its unit, such as 30s, 5m or 1h")
+	}
+	return err
 }
 
 // IsBoolFlag keeps a bool flag one without a value.
