@@ -287,7 +287,7 @@ func mistakeItems(dir string) []badInput {
 				}
 			},
 			plan: edit("  file: d.csv\n", "  file: D49.csv\n  missing_values: [\"-99\"]\n"),
-			want: []string{`D49.csv:3: column "a": value "" is not a number; an empty cell is not a missing value here: data.missing_values replaces the default markers ("", "NA", "NaN", ".") and leaves "" out: to read it as missing, set data.missing_values: ["-99", ""] (the markers in force and it), or list it for this column alone under dictionary.a.missing (ordplan fit reads an empty cell as missing always)`},
+			want: []string{`D49.csv:3: column "a": value "" is not a number; an empty cell (or a Parquet file's null) is not a missing value here: data.missing_values replaces the default markers ("", "NA", "NaN", ".") and leaves "" out: to read it as missing, set data.missing_values: ["-99", ""] (the markers in force and it), or list it for this column alone under dictionary.a.missing (ordplan fit reads an empty cell as missing always)`},
 			known: func(out, errs string, code int) string {
 				if strings.Contains(errs, "the column holds text: declare it categorical") {
 					return "an empty cell was said to be text, with the hint to declare the column categorical"

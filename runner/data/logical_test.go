@@ -260,3 +260,28 @@ func TestParquetFloat16(t *testing.T) {
 		t.Errorf("a FLOAT16 infinity: %v", err)
 	}
 }
+
+// A Parquet null is read as an empty cell: missing under the default
+// markers, refused as one under markers that leave the empty text out,
+// the message saying that a null is such a cell.
+func TestParquetNullUnderMarkers(t *testing.T) {
+	type row struct {
+		Y string   `parquet:"y"`
+		A *float64 `parquet:"a,optional"`
+	}
+	one, two := 1.0, 2.0
+	var buf bytes.Buffer
+	if err := parquet.Write(&buf, []row{{"a", &one}, {"b", nil}, {"a", &two}, {"b", &one}}); err != nil {
+		t.Fatal(err)
+	}
+	opt := Options{Outcome: "y", Categories: []string{"a", "b"}, Predictors: []string{"a"}}
+	d, err := readBytes(buf.Bytes(), "n.parquet", opt)
+	if err != nil || d.N != 3 {
+		t.Fatalf("default markers: %v", err)
+	}
+	opt.MissingTokens = []string{"-99"}
+	_, err = readBytes(buf.Bytes(), "n.parquet", opt)
+	if want := `n.parquet:3: column "a": value "" is not a number; an empty cell (or a Parquet file's null) is not a missing value here`; err == nil || !strings.HasPrefix(err.Error(), want) {
+		t.Errorf("markers without the empty text: %v", err)
+	}
+}

@@ -641,7 +641,7 @@ func (r *reader) missingWordHint(col, cell string) string {
 	}
 	lead := "; it looks like a missing-value marker, which is not among the markers in force"
 	if cell == "" {
-		lead = "; an empty cell is not a missing value here: data.missing_values replaces the default markers (\"\", \"NA\", \"NaN\", \".\") and leaves \"\" out"
+		lead = "; an empty cell (or a Parquet file's null) is not a missing value here: data.missing_values replaces the default markers (\"\", \"NA\", \"NaN\", \".\") and leaves \"\" out"
 	}
 	return lead + ": to read it as missing, set data.missing_values: [" + strings.Join(q, ", ") + "] (the markers in force and it), or list it for this column alone under dictionary." + col + ".missing" + fit
 }
