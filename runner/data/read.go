@@ -262,6 +262,9 @@ func (r *reader) names() ([]string, map[string]int, error) {
 		n := strings.TrimSpace(h)
 		if n == "" {
 			if ref := cellName(r.cr, i); ref != "" {
+				if h := r.cr.(*sheetRecords).coveredHeader(i); h != "" {
+					return nil, nil, r.fail(line, "", "header: column %d (cell %s) has no name%s", i+1, ref, h)
+				}
 				return nil, nil, r.fail(line, "", "header: column %d (cell %s) has no name: name it (or, if the column holds nothing, delete it)", i+1, ref)
 			}
 			return nil, nil, r.fail(line, "", "header: column %d has no name", i+1)

@@ -54,6 +54,26 @@ type sheetRecords struct {
 	read       SheetRead
 	header     []string // the header's names, once read
 	headerLine int      // its sheet row
+	// merged are the sheet's merged ranges, for the messages about a
+	// header cell they cover (coveredHeader)
+	merged []excelize.MergeCell
+}
+
+// coveredHeader says, of the header row's cell of field (0-based), that
+// merged cells cover it, their one value held by another cell, and what
+// to do; "" when they do not: the sheet shows one name across the merged
+// columns, while every column needs a name of its own.
+func (s *sheetRecords) coveredHeader(field int) string {
+	col, row := s.lead+field+1, s.headerLine
+	for _, m := range s.merged {
+		c1, r1, err1 := excelize.CellNameToCoordinates(m.GetStartAxis())
+		c2, r2, err2 := excelize.CellNameToCoordinates(m.GetEndAxis())
+		if err1 != nil || err2 != nil || col < c1 || col > c2 || row < r1 || row > r2 || col == c1 && row == r1 {
+			continue
+		}
+		return fmt.Sprintf("; the cell is one of the merged cells %s:%s, whose one value, held by %s, the sheet shows across them all: unmerge them and name each column in the header row", m.GetStartAxis(), m.GetEndAxis(), m.GetStartAxis())
+	}
+	return ""
 }
 
 // SheetRead names the worksheet a workbook's data were read from.
@@ -318,6 +338,7 @@ func readSheet(f *excelize.File, raw []byte, d Dialect) (*sheetRecords, string) 
 		return nil, fmt.Sprintf("sheet %s cannot be read: %v", quoteCell(sheet), err)
 	}
 	markMerged(rows, h, merged)
+	sr.merged = merged
 	for row, cols := range sr.formulas {
 		for ; row > len(rows); rows = append(rows, nil) {
 		}
@@ -492,6 +513,11 @@ func (s *sheetRecords) beyondHeader(field int, cell string) string {
 	if s.width == 1 {
 		msg = fmt.Sprintf("cell %s holds %s, right of the header read from row %d, which holds one name, %s: if that is a title above the table, give the row of the column names with data.header_row (ordplan fit and ordplan init: --header-row); if the cell is a note beside the data, move or delete it", cellName(s, field), quoteCell(strings.TrimSpace(cell)), s.headerLine, quoteCell(strings.TrimSpace(s.header[0])))
 		return msg
+	}
+	if h := s.coveredHeader(field); h != "" {
+		// The header's last names were merged cells, read as empty.
+		top, _ := excelize.CoordinatesToCellName(s.lead+field+1, s.headerLine)
+		return msg + "; its column's header cell " + top + h[len("; the cell"):]
 	}
 	return msg + ": if it is a note beside the data, move or delete it; if it is data, give its column a name in the header row"
 }

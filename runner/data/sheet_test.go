@@ -216,3 +216,41 @@ func TestWorkbookTableLayout(t *testing.T) {
 		t.Errorf("unnamed column: %v", err)
 	}
 }
+
+// A header cell that merged cells cover, other than the one holding
+// their value, reads as no name: the message says so, within the header
+// (a column without a name) and at its end (the data right of the last
+// name), with the table at B1 too (the lead column left out). It said
+// "has no name: name it" or "right of the table" while the sheet shows
+// the merged name across the columns.
+func TestWorkbookMergedHeader(t *testing.T) {
+	book := func(at string, rows [][]any, merge [2]string) []byte {
+		f := excelize.NewFile()
+		defer f.Close()
+		col, row, _ := excelize.CellNameToCoordinates(at)
+		for j, r := range rows {
+			cell, _ := excelize.CoordinatesToCellName(col, row+j)
+			if err := f.SetSheetRow("Sheet1", cell, &r); err != nil {
+				t.Fatal(err)
+			}
+		}
+		if err := f.MergeCell("Sheet1", merge[0], merge[1]); err != nil {
+			t.Fatal(err)
+		}
+		var b bytes.Buffer
+		if err := f.Write(&b); err != nil {
+			t.Fatal(err)
+		}
+		return b.Bytes()
+	}
+	raw := book("A1", [][]any{{"y", "a", nil, "d"}, {1, 0.5, 3, 1}, {2, 1.5, 4, 0}}, [2]string{"B1", "C1"})
+	_, err := readBytes(raw, "b.xlsx", Options{Outcome: "y", Predictors: []string{"a", "d"}})
+	if want := `b.xlsx:1: header: column 3 (cell C1) has no name; the cell is one of the merged cells B1:C1, whose one value, held by B1, the sheet shows across them all: unmerge them and name each column in the header row`; err == nil || err.Error() != want {
+		t.Errorf("merged within the header:\n got %v\nwant %s", err, want)
+	}
+	raw = book("B1", [][]any{{"y", "a", nil}, {1, 0.5, 3}, {2, 1.5, 4}}, [2]string{"C1", "D1"})
+	_, err = readBytes(raw, "b.xlsx", Options{Outcome: "y", Predictors: []string{"a"}})
+	if want := `b.xlsx:2: cell D2 holds "3", right of the table, whose header (row 1) names 2 columns, up to column C; its column's header cell D1 is one of the merged cells C1:D1, whose one value, held by C1, the sheet shows across them all: unmerge them and name each column in the header row`; err == nil || err.Error() != want {
+		t.Errorf("merged at the header's end:\n got %v\nwant %s", err, want)
+	}
+}
