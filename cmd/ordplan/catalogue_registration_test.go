@@ -115,6 +115,14 @@ func registrationItems(dir string) []badInput {
 				}
 			},
 			want: []string{"R2.lock.json: the lock file was edited by hand (its lock_checksum does not match its content)"}},
+		{id: "R2", name: "an empty JSON object where the lock should be", args: []string{"check"}, plan: goodPlan, code: 1,
+			setup: func(t *testing.T, dir, id string) {
+				lp := freezeAs(t, dir, id, goodPlan)
+				if err := os.WriteFile(lp, []byte("{}\n"), 0o644); err != nil {
+					t.Fatal(err)
+				}
+			},
+			want: []string{"R2.lock.json: not a lock file written by ordplan freeze (it has none of a lock's fields: ordplan_lock, canonical_sha256, lock_checksum); put the registered lock back, or remove this file if the plan was never frozen"}},
 		{id: "R3", name: "freezing over an existing lock", args: []string{"freeze"}, plan: goodPlan, code: 1,
 			setup: func(t *testing.T, dir, id string) { freezeAs(t, dir, id, goodPlan) },
 			want:  []string{"R3.lock.json already exists", "is not replaced silently", "pass --replace"},
@@ -259,6 +267,9 @@ func registrationItems(dir string) []badInput {
 		{id: "A28", name: "power --n 0", args: []string{"power", "--n", "0"}, code: 2,
 			plan: edit() + assumed("{a: 0.2}", ""),
 			want: []string{`ordplan power: --n: want sample sizes of at least 10, comma separated (e.g. 200,400,800), got "0"`}},
+		{id: "A28", name: "power without --n", args: []string{"power"}, code: 2,
+			plan: edit() + assumed("{a: 0.2}", ""),
+			want: []string{`ordplan power: --n is required: the sample sizes to simulate, at least 10 each, comma separated (e.g. --n 200,400,800)`}},
 		{id: "A25", name: "a cluster effect with a negative standard deviation", args: []string{"check", "--no-data"}, code: 1,
 			plan: clustered + assumed("{a: 0.2}", "  clusters: {number: 50, intercept_sd: -0.5}\n"),
 			want: []string{`A25.yaml:22:40: assumptions.clusters.intercept_sd: the standard deviation of the clusters' intercepts must be 0 or more, got -0.5 (0: no cluster effect)`}},

@@ -34,6 +34,10 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 	if stop {
 		return code
 	}
+	if strings.TrimSpace(*sizes) == "" {
+		fmt.Fprintf(stderr, "ordplan power: --n is required: the sample sizes to simulate, at least %d each, comma separated (e.g. --n 200,400,800)\n", plan.MinSimulatedRows)
+		return exitUsage
+	}
 	var ns []int
 	for _, s := range strings.Split(*sizes, ",") {
 		n, err := strconv.Atoi(strings.TrimSpace(s))

@@ -179,6 +179,9 @@ func Read(path string) (*File, error) {
 	if err := dec.Decode(&f); err != nil {
 		return nil, fmt.Errorf("%s: not a lock file written by ordplan freeze (%v)", path, err)
 	}
+	if f.Format == 0 && f.SHA256 == "" && f.Checksum == "" {
+		return nil, fmt.Errorf("%s: not a lock file written by ordplan freeze (it has none of a lock's fields: ordplan_lock, canonical_sha256, lock_checksum); put the registered lock back, or remove this file if the plan was never frozen", path)
+	}
 	if f.Format != Format {
 		return nil, fmt.Errorf("%s: unsupported lock format %d (want %d)", path, f.Format, Format)
 	}
