@@ -3216,6 +3216,8 @@ var testedElsewhere = map[string]struct{ file, name string }{
 	"Q14": {"../../runner/queue/reconnect_test.go", "TestConnectionLostAndFoundIsLogged"},
 	"Q17": {"../../runner/queue/secure_test.go", "TestLoginAndTokenFiles"},
 	"Q19": {"../../runner/queue/giveback_seal_test.go", "TestGiveBackHeadersSealed"},
+	"Q20": {"../../runner/queue/othersecret_test.go", "TestWorkerWithAnotherSecretLeavesJobs"},
+	"Q21": {"../../runner/queue/othersecret_test.go", "TestCoordinatorSaysWhatItWaitsFor"},
 }
 
 // Every item of the catalogue is in docs/bad-inputs.md, and every item

@@ -43,6 +43,12 @@ func seal(key []byte, kind byte, name string, payload []byte) []byte {
 
 var errUnsealed = errors.New("not authenticated: no valid HMAC with the shared secret (a process without the secret wrote it, or the coordinator and the worker use different secrets)")
 
+// errSealMismatch is errUnsealed for a message in ordplan's sealed form
+// whose HMAC does not match: changed, or sealed with another secret or by
+// another version of ordplan, which a worker cannot tell apart; a
+// message without the form is errUnsealed alone.
+var errSealMismatch = fmt.Errorf("%w", errUnsealed)
+
 // open checks a sealed message stored under name and returns its kind and
 // payload.
 func open(key []byte, name string, b []byte) (byte, []byte, error) {
@@ -52,7 +58,7 @@ func open(key []byte, name string, b []byte) (byte, []byte, error) {
 	kind := b[len(sealMagic)]
 	sum, payload := b[len(sealMagic)+1:sealHead], b[sealHead:]
 	if !hmac.Equal(sum, mac(key, kind, name, payload)) {
-		return 0, nil, errUnsealed
+		return 0, nil, errSealMismatch
 	}
 	return kind, payload, nil
 }

@@ -9,6 +9,8 @@ import (
 	"time"
 
 	"github.com/nats-io/nats.go/jetstream"
+
+	"ordplan/internal/words"
 )
 
 // BatchStats says where a batch's replies came from.
@@ -80,7 +82,7 @@ func (c *Client) runBatch(ctx context.Context, id string, tasks []*Task, h batch
 	// Replies stored before this call: a restarted coordinator reuses them
 	// (but for errors, computed again).
 	for {
-		e, err := next(ctx, w.Updates(), nil)
+		e, err := next(ctx, w.Updates(), nil, nil)
 		if err != nil {
 			return nil, b.st, err
 		}
@@ -120,10 +122,26 @@ func (c *Client) runBatch(ctx context.Context, id string, tasks []*Task, h batch
 	}
 	timer := time.NewTimer(deadline)
 	defer timer.Stop()
-	silent := 0 // deadlines passed without a reply
+	firstNotice := c.WaitNotice
+	if firstNotice <= 0 {
+		firstNotice = DefaultWaitNotice
+	}
+	noticeAfter := firstNotice
+	notice := time.NewTimer(noticeAfter)
+	defer notice.Stop()
+	waited := time.Duration(0) // since the last reply, at the last notice
+	silent := 0                // deadlines passed without a reply
 	for b.done < len(tasks) {
-		e, err := next(ctx, w.Updates(), timer.C)
+		e, err := next(ctx, w.Updates(), timer.C, notice.C)
 		switch {
+		case errors.Is(err, errNotice):
+			waited += noticeAfter
+			missing := b.missing()
+			c.logf("queue: waiting for %d of %d jobs (the first: %s): no reply for %s; %s; the missing jobs are published again when %s pass without a reply (--job-deadline)",
+				len(missing), len(tasks), tasks[missing[0]].label(), waited, c.workersNow(ctx), deadline)
+			noticeAfter *= 2 // 1, 2, 4, ... minutes: said, not repeated at length
+			notice.Reset(noticeAfter)
+			continue
 		case errors.Is(err, errDeadline):
 			silent++
 			missing := b.missing()
@@ -153,6 +171,14 @@ func (c *Client) runBatch(ctx context.Context, id string, tasks []*Task, h batch
 		}
 		if took {
 			silent = 0
+			waited, noticeAfter = 0, firstNotice
+			if !notice.Stop() {
+				select {
+				case <-notice.C:
+				default:
+				}
+			}
+			notice.Reset(noticeAfter)
 			if !timer.Stop() {
 				select {
 				case <-timer.C:
@@ -280,16 +306,22 @@ func shortKey(key string) string {
 	return key
 }
 
-var errDeadline = errors.New("deadline")
+var (
+	errDeadline = errors.New("deadline")
+	errNotice   = errors.New("notice")
+)
 
 // next returns the watcher's next entry (nil marks the end of the stored
-// ones), or errDeadline when the timer fires first.
-func next(ctx context.Context, updates <-chan jetstream.KeyValueEntry, timer <-chan time.Time) (jetstream.KeyValueEntry, error) {
+// ones), or errDeadline when the timer fires first, errNotice when
+// notice does (the wait is to be said).
+func next(ctx context.Context, updates <-chan jetstream.KeyValueEntry, timer, notice <-chan time.Time) (jetstream.KeyValueEntry, error) {
 	select {
 	case <-ctx.Done():
 		return nil, fmt.Errorf("waiting for workers: %w", context.Cause(ctx))
 	case <-timer:
 		return nil, errDeadline
+	case <-notice:
+		return nil, errNotice
 	case e, ok := <-updates:
 		if !ok {
 			return nil, errors.New("the results watch was closed (connection lost?)")
@@ -325,4 +357,32 @@ func (c *Client) queuedSubjects(ctx context.Context, batch string) (map[string]b
 		}
 	}
 	return out, nil
+}
+
+// workersNow says what the workers' consumer shows of the workers: none
+// ever connected, jobs held, fetches waiting, or none asking; with what to
+// do where the run cannot go on without the user.
+func (c *Client) workersNow(ctx context.Context) string {
+	ictx, cancel := context.WithTimeout(ctx, 5*time.Second)
+	defer cancel()
+	cons, err := c.js.Consumer(ictx, JobStream, WorkerGroup)
+	if errors.Is(err, jetstream.ErrConsumerNotFound) {
+		return "no worker has connected to this server yet: start one (ordplan worker --queue URL) with the coordinator's secret file (--queue-secret-file)"
+	}
+	var info *jetstream.ConsumerInfo
+	if err == nil {
+		info, err = cons.Info(ictx)
+	}
+	if err != nil {
+		return fmt.Sprintf("the workers' state could not be read (%v)", err)
+	}
+	switch {
+	case info.NumAckPending > 0:
+		return fmt.Sprintf("workers hold %s now (long fits, or a worker killed, whose jobs go to another worker after its ack wait)",
+			words.Count(info.NumAckPending, "job", "jobs"))
+	case info.NumWaiting > 0:
+		return "workers are asking for jobs but none holds one of these: workers whose secret differs from the coordinator's refuse them (job refused in their logs): give them the coordinator's secret file (--queue-secret-file)"
+	default:
+		return "no worker is asking for jobs now: start one (ordplan worker --queue URL) with the coordinator's secret file (--queue-secret-file)"
+	}
 }

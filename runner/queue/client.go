@@ -28,6 +28,11 @@ type Client struct {
 	// a batch before it publishes the missing jobs again; after a second
 	// such wait without any reply it fails (default DefaultJobDeadline).
 	JobDeadline time.Duration
+	// WaitNotice is how long the coordinator waits for the next reply of
+	// a batch before it logs what it waits for and what the workers'
+	// consumer shows (default DefaultWaitNotice; each later notice waits
+	// twice as long).
+	WaitNotice time.Duration
 	// Log, when set, hears of discarded replies and republished jobs.
 	Log io.Writer
 }

@@ -64,11 +64,14 @@
 // the coordinator and the workers (auth.go); the give-back headers of a
 // job carry their own HMAC of the counts, the subject and the job
 // (giveBackSeal), so a process without the secret cannot change how many
-// deliveries of a job count. Workers drop jobs that do not open or whose
-// give-back headers do not match their seal, and refuse jobs beyond their
-// Limits; the coordinator discards, logs
+// deliveries of a job count. Workers drop jobs without the seal or whose
+// give-back headers do not match their seal, leave on the queue until its
+// last delivery a job whose seal does not match their secret (the
+// worker's secret may be the wrong one: Worker.refuse), and refuse jobs
+// beyond their Limits; the coordinator discards, logs
 // and publishes again the job of a reply that does not open or does not
-// have the shape of an answer (validate.go), and never waits longer than
-// twice the job deadline without a reply. Connect takes TLS files and NATS
+// have the shape of an answer (validate.go), says what it waits for after
+// WaitNotice without a reply (Client.workersNow: the workers' consumer),
+// and never waits longer than twice the job deadline without a reply. Connect takes TLS files and NATS
 // credentials (Config) and never shows a URL's password.
 package queue

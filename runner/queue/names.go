@@ -16,6 +16,10 @@ const (
 	// DefaultAckWait is how long a job may go without an acknowledgement
 	// (final or in progress) before it is delivered to another worker.
 	DefaultAckWait = 30 * time.Second
+	// DefaultWaitNotice is how long a coordinator waits for the next
+	// reply of a batch before it says what it waits for (then again after
+	// twice as long, and so on).
+	DefaultWaitNotice = time.Minute
 	// DefaultJobDeadline is how long a coordinator waits for the next reply
 	// of a batch before it publishes the missing jobs again (and, after a
 	// second such wait, fails).

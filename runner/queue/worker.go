@@ -142,6 +142,37 @@ func (w *Worker) loop(ctx context.Context, cons jetstream.Consumer) {
 	}
 }
 
+// refusedRetryDelay is how long a job whose seal does not match this
+// worker's secret waits before it is delivered again; refusedPause is how
+// long the worker's fetch that refused it then waits, so that workers
+// holding the coordinator's secret take the queued jobs meanwhile.
+const (
+	refusedRetryDelay = 2 * time.Second
+	refusedPause      = 3 * time.Second
+)
+
+// refuse answers a job that does not open (err). A message in ordplan's
+// sealed form whose seal does not match may come from a coordinator whose
+// secret differs from this worker's (or another version of ordplan): the
+// fault may be this worker's, so the job is left on the queue for another
+// worker until its last delivery, and removed then. Anything else (no seal,
+// give-back headers that do not match theirs) is removed at once.
+func (w *Worker) refuse(ctx context.Context, msg jetstream.Msg, err error) {
+	delivered := uint64(MaxDeliver)
+	if md, merr := msg.Metadata(); merr == nil {
+		delivered = md.NumDelivered
+	}
+	if errors.Is(err, errSealMismatch) && delivered < MaxDeliver {
+		w.logf("worker %s: %s: job refused: %v; left on the queue for a worker holding the coordinator's secret (delivery %d of at most %d, removed at the last): if this worker refuses every job, give it the coordinator's secret file (--queue-secret-file) and the coordinator's version of ordplan",
+			w.Name, msg.Subject(), err, delivered, MaxDeliver)
+		msg.NakWithDelay(refusedRetryDelay)
+		sleep(ctx, refusedPause)
+		return
+	}
+	w.logf("worker %s: %s: job refused: %v", w.Name, msg.Subject(), err)
+	msg.TermWithReason("job refused: " + err.Error())
+}
+
 // faultRetryDelay is how long a job whose computation failed through a
 // fault of the worker waits before it is delivered again.
 const faultRetryDelay = time.Second
@@ -159,8 +190,7 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 		delivered, gaveBack, err = w.Client.deliveries(msg, t)
 	}
 	if err != nil {
-		w.logf("worker %s: %s: job refused: %v", w.Name, msg.Subject(), err)
-		msg.TermWithReason("job refused: " + err.Error())
+		w.refuse(ctx, msg, err)
 		return
 	}
 	if ctx.Err() != nil {
