@@ -2886,6 +2886,8 @@ func catalogue(dir string) (items []badInput) {
 			}},
 		{id: "Q5", name: "queue server unreachable", args: []string{"worker", "--queue", "nats://127.0.0.1:1"}, code: 1,
 			want: []string{"queue nats://127.0.0.1:1: cannot reach the queue server (nats: no servers available for connection): check that it runs at that address and that --queue names it"}},
+		{id: "Q22", name: "queue server host name that does not resolve", args: []string{"worker", "--queue", "nats://no-such-host.invalid:4222"}, code: 1,
+			want: []string{"queue nats://no-such-host.invalid:4222: cannot find the queue server's host no-such-host.invalid (", "): check the host name in --queue, or give its address"}},
 		{id: "Q6", name: "queue URL with a scheme the server does not speak", args: []string{"worker", "--queue", "http://127.0.0.1:1"}, code: 1,
 			want: []string{`queue http://127.0.0.1:1: "http" is not a scheme the queue server speaks: give nats://HOST:PORT (or tls://, ws://, wss://)`}},
 		{id: "Q7", name: "ordplan fit --partitions, the old name of --parts", args: []string{"fit", "--outcome", "y", "--predictors", "a", "--partitions", "p1.csv,p2.csv"}, code: 2, lines: true,

@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"net"
 	"net/url"
 	"os"
 	"runtime"
@@ -353,10 +354,16 @@ func (cfg Config) explainRefusal(err error, msg string) string {
 	var unknown x509.UnknownAuthorityError
 	var host x509.HostnameError
 	var invalid x509.CertificateInvalidError
+	var dns *net.DNSError
+	var timeout net.Error
 	auth := cfg.authFiles()
 	switch {
 	case errors.Is(err, nats.ErrNoServers):
 		return fmt.Sprintf("cannot reach the queue server (%s): check that it runs at that address and that --queue names it", msg)
+	case errors.As(err, &dns):
+		return fmt.Sprintf("cannot find the queue server's host %s (%s): check the host name in --queue, or give its address", dns.Name, msg)
+	case errors.As(err, &timeout) && timeout.Timeout():
+		return fmt.Sprintf("cannot reach the queue server: no answer in time (%s): check that it runs at that address, that --queue names it and that no firewall blocks the port", msg)
 	case errors.As(err, &unknown) && cfg.CAFile != "":
 		return fmt.Sprintf("the server's TLS certificate is not signed by an authority in the CA file (--queue-ca) %s: give the CA file that signed the server's certificate (%s)", cfg.CAFile, msg)
 	case errors.As(err, &unknown):
