@@ -285,6 +285,25 @@ func (p *Plan) EntryOf(col string) *Entry {
 	return nil
 }
 
+// UnitOf gives the unit the dictionary states for a column, or "".
+func (p *Plan) UnitOf(col string) string {
+	if e := p.EntryOf(col); e != nil {
+		return e.Unit
+	}
+	return ""
+}
+
+// WithUnit is text that names a column, or a change of it in its own
+// units, followed by the column's unit in brackets ("age (years)", "per
+// unit of age (years)"); text alone when no unit is given. Every table and
+// chart names a column's unit this way.
+func WithUnit(text, unit string) string {
+	if unit == "" {
+		return text
+	}
+	return text + " (" + unit + ")"
+}
+
 func (p *Plan) outcomeOf(col string) *Outcome {
 	for i := range p.Outcomes {
 		if p.Outcomes[i].Column == col {

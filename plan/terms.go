@@ -325,7 +325,7 @@ func (p *Plan) DesignSpec(o Outcome) design.Spec {
 			continue
 		}
 		have[t.Source] = true
-		src := design.Source{Name: t.Source}
+		src := design.Source{Name: t.Source, Unit: p.UnitOf(t.Source)}
 		if c := p.categorical(t.Source); c != nil {
 			cat := c.Categorical
 			src.Cat = &cat

@@ -41,12 +41,7 @@ func newProfile(or *runner.OutcomeResult, focus string, fixed map[string]string)
 
 // axisTitle is the title of an axis over column col: its name, and its
 // unit in brackets when the plan's dictionary gives one (age (years)).
-func axisTitle(p *plan.Plan, col string) string {
-	if e := p.EntryOf(col); e != nil && e.Unit != "" {
-		return col + " (" + e.Unit + ")"
-	}
-	return col
-}
+func axisTitle(p *plan.Plan, col string) string { return plan.WithUnit(col, p.UnitOf(col)) }
 
 // grid returns the focus values.
 func (pf *profile) grid(points int) []float64 { return pf.Grid(points) }

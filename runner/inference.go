@@ -294,7 +294,7 @@ func sourceEffects(or *OutcomeResult, res *fit.Result, raw []float64, n int, off
 			return nil, nil, err
 		}
 		for i := range eff {
-			eff[i].Change = "per unit"
+			eff[i].Change = plan.WithUnit("per unit", src.Unit) // a derivative by the raw column, in its units
 		}
 		out = append(out, eff...)
 	}

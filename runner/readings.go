@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"ordplan/internal/words"
+	"ordplan/plan"
 	"ordplan/runner/data"
 	"ordplan/runner/design"
 	"ordplan/runner/fit"
@@ -20,9 +21,10 @@ import (
 // all.
 type ColumnReading struct {
 	Column string
-	// Change is what a unit of the column is: "per unit of age", "per SD
-	// (3.11) of z", "1 against 0", "through_road against residential";
-	// for a product column, the changes of its components.
+	// Change is what a unit of the column is: "per unit of age", "per
+	// unit of age (years)" (the dictionary's unit), "per SD (3.11) of
+	// z", "1 against 0", "through_road against residential"; for a
+	// product column, the changes of its components.
 	Change string
 	// Where is where the slope holds, when the column's term enters an
 	// interaction with other terms: those terms' columns at 0
@@ -170,6 +172,12 @@ func termReadings(dz *design.Design, raw *data.Dataset, k int, per [][]ColumnRea
 			// alone has a reading (left out, as basis columns are).
 			return []ColumnReading{{Column: t.Columns[0], Change: fmt.Sprintf("%s, whose column %s also makes term %s", expr, dz.Sources[t.Source].Name, o.Name)}}
 		}
+	}
+	if !tr.Log && !tr.Sqrt {
+		// A change of the column in its own units (centred or scaled
+		// alike): the dictionary's unit applies; a unit of log(x) or
+		// sqrt(x) is none of x's.
+		expr = plan.WithUnit(expr, dz.Sources[t.Source].Unit)
 	}
 	r := ColumnReading{Column: t.Columns[0], Alone: true, Change: "per unit of " + expr}
 	switch {

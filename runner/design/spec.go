@@ -31,6 +31,9 @@ type Categorical struct {
 type Source struct {
 	Name string       `json:"name"`
 	Cat  *Categorical `json:"categorical,omitempty"` // nil: numeric
+	// Unit is the column's unit as the plan's dictionary gives it ("":
+	// none), for the readings of its slopes.
+	Unit string `json:"unit,omitempty"`
 }
 
 // Transform is the chain applied to a numeric column, in this order:
