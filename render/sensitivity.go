@@ -208,7 +208,7 @@ func writeSensitivityOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult,
 		name string
 		m    runner.SensitivityModel
 	}
-	cols := []column{{"primary analysis", runner.SensitivityModel{Model: or.Chosen.ID, Estimates: runner.KeyEstimates(res, level)}}}
+	cols := []column{{primaryAnalysis, runner.SensitivityModel{Model: or.Chosen.ID, Estimates: runner.KeyEstimates(res, level)}}}
 	var missing []string
 	for _, sr := range r.Sensitivity {
 		m := runner.PrimaryModelUnder(or.Chosen.ID, sr.Outcome(or.Outcome.Column), level)
@@ -476,6 +476,11 @@ func limitIf(cond bool, s string) string {
 	return ""
 }
 
+// primaryAnalysis names the primary analysis among the sensitivity
+// analyses, in the report's table of estimates under each and in its CSV
+// (a name the plan refuses for a sensitivity analysis).
+const primaryAnalysis = "primary analysis"
+
 // sensitivityCSV is the table of the chosen model's effects under the
 // primary analysis and each sensitivity analysis (the report's table, full
 // precision); ok is false without sensitivity analyses or a chosen model.
@@ -488,11 +493,11 @@ func sensitivityCSV(r *runner.Result, or *runner.OutcomeResult, level float64, l
 			rows = append(rows, []string{analysis, ParamLabel(or.Chosen.Result, e.Parameter), csvNum(e.Estimate), csvNum(e.StdError), csvNum(e.Lower), csvNum(e.Upper), e.Reference, csvDFOf(e.DF)})
 		}
 	}
-	add("primary", runner.SensitivityModel{Estimates: runner.KeyEstimates(or.Chosen.Result, level)})
+	add(primaryAnalysis, runner.SensitivityModel{Estimates: runner.KeyEstimates(or.Chosen.Result, level)})
 	for _, sr := range r.Sensitivity {
 		add(sr.Sensitivity.Name, runner.PrimaryModelUnder(or.Chosen.ID, sr.Outcome(or.Outcome.Column), level))
 	}
-	about = fmt.Sprintf("the effects of the chosen model, %s, under the primary analysis (primary) and under each sensitivity analysis the plan fixed (by its name), with %s%% intervals and the distribution they refer to (reference: normal, or t on df degrees of freedom, G-1 under cluster-robust errors from G clusters or the Barnard-Rubin degrees of freedom pooled over imputed sets; df inf for the normal); an analysis under which the model was not fitted has no rows (the report says why)", or.Chosen.ID, lv)
+	about = fmt.Sprintf("the effects of the chosen model, %s, under the primary analysis (named \""+primaryAnalysis+"\") and under each sensitivity analysis the plan fixed (by its name), with %s%% intervals and the distribution they refer to (reference: normal, or t on df degrees of freedom, G-1 under cluster-robust errors from G clusters or the Barnard-Rubin degrees of freedom pooled over imputed sets; df inf for the normal); an analysis under which the model was not fitted has no rows (the report says why)", or.Chosen.ID, lv)
 	return "sensitivity", about, []string{"analysis", "parameter", "estimate", "std_error", "low_" + lv, "high_" + lv, "reference", "df"}, rows, true
 }
 

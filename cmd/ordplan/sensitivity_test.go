@@ -350,7 +350,9 @@ func TestSensitivityErrorsOnly(t *testing.T) {
 			// freedom, and its half-width over the standard error is that
 			// reference's 0.975 quantile (R: qnorm(0.975) = 1.959964,
 			// qt(0.975, 11) = 2.200985, as R prints them).
+			analyses := map[string]int{}
 			for _, row := range readCSVTable(t, out, "table-sensitivity-y.csv") {
+				analyses[row["analysis"]]++
 				ref, df, q := "normal", "inf", 1.959964
 				if row["analysis"] == "clustered" {
 					ref, df, q = "t", "11", 2.200985
@@ -361,6 +363,10 @@ func TestSensitivityErrorsOnly(t *testing.T) {
 				if row["reference"] != ref || row["df"] != df || math.Abs((high-low)/(2*se)-q) > 1e-6 {
 					t.Errorf("table-sensitivity-y.csv: %s %s: reference %s on df %s, interval %v to %v of standard error %v; want %s on %s, half-width %v standard errors", row["analysis"], row["parameter"], row["reference"], row["df"], low, high, se, ref, df, q)
 				}
+			}
+			// The CSV names the analyses as the report's table does.
+			if len(analyses) != 2 || analyses["primary analysis"] == 0 || analyses["clustered"] != analyses["primary analysis"] || !bytes.Contains(report, []byte(" | primary analysis | ")) {
+				t.Errorf("table-sensitivity-y.csv names the analyses %v; want primary analysis and clustered, as report.md", analyses)
 			}
 			if !bytes.Contains(report, []byte("| clustered | ")) || !bytes.Contains(report, []byte(" | t | 11.0 |\n")) || !bytes.Contains(report, []byte(" | normal | inf |\n")) {
 				t.Error("report.md's estimates under each analysis lack the reference and its df")
