@@ -3220,6 +3220,7 @@ var testedElsewhere = map[string]struct{ file, name string }{
 	"Q19": {"../../runner/queue/giveback_seal_test.go", "TestGiveBackHeadersSealed"},
 	"Q20": {"../../runner/queue/othersecret_test.go", "TestWorkerWithAnotherSecretLeavesJobs"},
 	"Q21": {"../../runner/queue/othersecret_test.go", "TestCoordinatorSaysWhatItWaitsFor"},
+	"Q23": {"../../runner/queue/worded_test.go", "TestCacheFailureWorded"},
 }
 
 // Every item of the catalogue is in docs/bad-inputs.md, and every item

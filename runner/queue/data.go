@@ -10,6 +10,7 @@ import (
 	"os"
 	"path/filepath"
 	"sync"
+	"syscall"
 	"time"
 
 	"github.com/nats-io/nats.go/jetstream"
@@ -106,14 +107,24 @@ func CacheUsable(dir string) error { return newDataCache(dir).usable() }
 // the data files it fetches.
 func (dc *dataCache) usable() error {
 	if err := os.MkdirAll(dc.dir, 0o755); err != nil {
-		return fmt.Errorf("data cache %s: %v (give --cache a folder this worker can write)", dc.dir, err)
+		return dc.failed(err)
 	}
 	f, err := os.CreateTemp(dc.dir, "probe.*.part")
 	if err != nil {
-		return fmt.Errorf("data cache %s: %v (give --cache a folder this worker can write)", dc.dir, err)
+		return dc.failed(err)
 	}
 	f.Close()
 	return os.Remove(f.Name())
+}
+
+// failed words a file the cache folder could not take, with what to do:
+// a full folder wants room, any other failure a folder this worker can
+// write.
+func (dc *dataCache) failed(err error) error {
+	if errors.Is(err, syscall.ENOSPC) {
+		return fmt.Errorf("data cache %s: the folder is full (%v): free space there, or give --cache a folder with room for the data files", dc.dir, err)
+	}
+	return fmt.Errorf("data cache %s: %v (give --cache a folder this worker can write)", dc.dir, err)
 }
 
 // path returns the local path of the data file with the given hash,
@@ -151,11 +162,11 @@ func (dc *dataCache) path(ctx context.Context, store jetstream.ObjectStore, hash
 		return "", fmt.Errorf("data %s: the data store's copy hashes to %s, not %s; refusing to fit on it", name, got, hash)
 	}
 	if err := os.MkdirAll(dc.dir, 0o755); err != nil {
-		return "", fmt.Errorf("data cache: %v", err)
+		return "", dc.failed(err)
 	}
 	tmp, err := os.CreateTemp(dc.dir, hash+".*.part")
 	if err != nil {
-		return "", fmt.Errorf("data cache: %v", err)
+		return "", dc.failed(err)
 	}
 	_, werr := tmp.Write(b)
 	cerr := tmp.Close()
@@ -167,7 +178,7 @@ func (dc *dataCache) path(ctx context.Context, store jetstream.ObjectStore, hash
 	}
 	if werr != nil {
 		os.Remove(tmp.Name())
-		return "", fmt.Errorf("data cache: %v", werr)
+		return "", dc.failed(werr)
 	}
 	dc.remember(hash, p)
 	return p, nil
