@@ -3221,6 +3221,7 @@ var testedElsewhere = map[string]struct{ file, name string }{
 	"Q20": {"../../runner/queue/othersecret_test.go", "TestWorkerWithAnotherSecretLeavesJobs"},
 	"Q21": {"../../runner/queue/othersecret_test.go", "TestCoordinatorSaysWhatItWaitsFor"},
 	"Q23": {"../../runner/queue/worded_test.go", "TestCacheFailureWorded"},
+	"Q24": {"../../runner/queue/worded_test.go", "TestAckWaitOfRunningWorkersKept"},
 }
 
 // Every item of the catalogue is in docs/bad-inputs.md, and every item

@@ -80,13 +80,22 @@ func (w *Worker) Run(ctx context.Context) error {
 	if w.AckWait <= 0 {
 		w.AckWait = DefaultAckWait
 	}
-	w.interval = max(w.AckWait/3, 50*time.Millisecond)
 	w.Limits = w.Limits.withDefaults()
 	w.cache = newDataCache(w.CacheDir)
 	if err := w.cache.usable(); err != nil {
 		return err
 	}
 	w.parts = newPartitionCache(4)
+	shared, err := w.Client.runningAckWait(ctx)
+	if err != nil {
+		return err
+	}
+	if shared > 0 && shared != w.AckWait {
+		w.logf("worker %s: warning: --ack-wait %s not taken: the workers running on this server have an ack wait of %s, which this worker keeps to (the workers share it: a new value would apply to them too while their in-progress acknowledgements keep to theirs, and their long jobs would go to other workers as if they had died); to change it, stop every worker and start them all with the new value",
+			w.Name, w.AckWait, shared)
+		w.AckWait = shared
+	}
+	w.interval = max(w.AckWait/3, 50*time.Millisecond)
 	cons, err := w.Client.js.CreateOrUpdateConsumer(ctx, JobStream, jetstream.ConsumerConfig{
 		Durable:       WorkerGroup,
 		Description:   "ordplan workers",
@@ -116,6 +125,30 @@ func (w *Worker) Run(ctx context.Context) error {
 	// log of a stopped worker does not end as if it were waiting for jobs.
 	w.logf("worker %s: stopped; it finished the jobs it had started first (a reply it could not store is logged above, and its job goes to another worker)", w.Name)
 	return nil
+}
+
+// runningAckWait is the ack wait of the workers' consumer while workers
+// use it (fetches waiting or jobs held), or 0 when there is no consumer
+// or no worker on it. The consumer is shared: a worker that set another
+// value would set it for the running workers too, whose in-progress
+// acknowledgements keep to a third of their own, so a worker keeps to
+// this one (Run).
+func (c *Client) runningAckWait(ctx context.Context) (time.Duration, error) {
+	cons, err := c.js.Consumer(ctx, JobStream, WorkerGroup)
+	if errors.Is(err, jetstream.ErrConsumerNotFound) {
+		return 0, nil
+	}
+	if err != nil {
+		return 0, fmt.Errorf("worker consumer %s: %v", WorkerGroup, err)
+	}
+	info, err := cons.Info(ctx)
+	if err != nil {
+		return 0, fmt.Errorf("worker consumer %s: %v", WorkerGroup, err)
+	}
+	if info.NumWaiting == 0 && info.NumAckPending == 0 {
+		return 0, nil
+	}
+	return info.Config.AckWait, nil
 }
 
 // loop takes one job at a time: a job is only taken when this goroutine
