@@ -2911,7 +2911,9 @@ func catalogue(dir string) (items []badInput) {
 		{id: "Q12", name: "a worker whose --cache cannot hold files", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-secret-file", d("queue.key"), "--cache", d("d.csv")}, code: 1,
 			want: []string{"data cache d.csv: mkdir d.csv: not a directory (give --cache a folder this worker can write)"}},
 		{id: "Q3", name: "secret file too short", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-secret-file", d("short.key")}, code: 1,
-			want: []string{"short.key: 5 bytes; a shared secret needs at least 16"}},
+			want: []string{"secret file (--queue-secret-file) short.key: 5 bytes; a shared secret needs at least 16"}},
+		{id: "Q25", name: "secret file that does not exist", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-secret-file", d("nope.key")}, code: 1,
+			want: []string{"secret file (--queue-secret-file) nope.key: no such file or directory: give the file holding the secret the coordinator and the workers share (one is made by head -c 32 /dev/urandom | base64 > nope.key && chmod 600 nope.key, then copied to every machine)"}},
 		{id: "Q15", name: "two ways to authenticate to the queue server", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--queue-login", d("one.login"), "--queue-token", d("queue.token")}, code: 1,
 			want: []string{"queue nats://127.0.0.1:1: --queue-login and --queue-token each say how to authenticate to the server: give one of them"},
 			check: func(t *testing.T, dir, out, errs string) {

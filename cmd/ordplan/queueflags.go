@@ -64,7 +64,7 @@ func (q *queueFlags) config(name string) (queue.Config, error) {
 	if *q.secretFile == "" {
 		return cfg, errNoSecret
 	}
-	s, err := queue.LoadSecret(*q.secretFile)
+	s, err := cfg.LoadSecret(*q.secretFile)
 	if err != nil {
 		return cfg, err
 	}

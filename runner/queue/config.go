@@ -88,17 +88,24 @@ const MinSecretBytes = 16
 // LoadSecret reads the shared secret from a file: its bytes, without
 // surrounding white space, at least MinSecretBytes of them (for example
 // `head -c 32 /dev/urandom | base64 > queue.key && chmod 600 queue.key`).
-func LoadSecret(path string) ([]byte, error) {
-	if err := regularFile(path, "secret file"); err != nil {
-		return nil, err
+// Messages name the file with the flag or environment variable that gave
+// it (givenBy) and say what to do.
+func (cfg Config) LoadSecret(path string) ([]byte, error) {
+	what := "secret file (" + cfg.givenBy("--queue-secret-file") + ")"
+	make := fmt.Sprintf("head -c 32 /dev/urandom | base64 > %s && chmod 600 %s", shellWord(path), shellWord(path))
+	if err := regularFile(path, what); err != nil {
+		if _, serr := os.Stat(path); errors.Is(serr, os.ErrNotExist) {
+			return nil, fmt.Errorf("%v: give the file holding the secret the coordinator and the workers share (one is made by %s, then copied to every machine)", err, make)
+		}
+		return nil, fmt.Errorf("%v: give the file holding the secret the coordinator and the workers share", err)
 	}
 	b, err := os.ReadFile(path)
 	if err != nil {
-		return nil, fmt.Errorf("secret file %s: %v", path, osMsg(err))
+		return nil, fmt.Errorf("%s %s: %v", what, path, osMsg(err))
 	}
 	b = []byte(strings.TrimSpace(string(b)))
 	if len(b) < MinSecretBytes {
-		return nil, fmt.Errorf("secret file %s: %d bytes; a shared secret needs at least %d (e.g. head -c 32 /dev/urandom | base64 > %s && chmod 600 %s)", path, len(b), MinSecretBytes, shellWord(path), shellWord(path))
+		return nil, fmt.Errorf("%s %s: %d bytes; a shared secret needs at least %d (e.g. %s)", what, path, len(b), MinSecretBytes, make)
 	}
 	return b, nil
 }

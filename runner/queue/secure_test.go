@@ -180,7 +180,7 @@ func TestSecretsNotPrinted(t *testing.T) {
 	}
 	sf := filepath.Join(t.TempDir(), "short.key")
 	os.WriteFile(sf, []byte("short\n"), 0o600)
-	if _, err := LoadSecret(sf); err == nil || strings.Contains(err.Error(), "short\n") || !strings.Contains(err.Error(), "at least 16") {
+	if _, err := (Config{}).LoadSecret(sf); err == nil || strings.Contains(err.Error(), "short\n") || !strings.Contains(err.Error(), "at least 16") {
 		t.Errorf("short secret: %v", err)
 	}
 }
