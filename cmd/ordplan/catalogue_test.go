@@ -386,7 +386,8 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		"cr.csv": []byte(strings.ReplaceAll(csv, "\n", "\r")), "two.csv": []byte(two.String()),
 		"bad.xlsx": append([]byte("PK\x03\x04"), bytes.Repeat([]byte{7}, 200)...), "notzip.xlsx": []byte(csv),
 		"bad.parquet": []byte("PAR1garbagegarbagePAR1"), "notpq.parquet": []byte(csv), "dates.parquet": datesParquet(t),
-		"formula.xlsx": formulaWorkbook(t), "shown.xlsx": shownWorkbook(t), "bomb.xlsx": claimingWorkbook(t),
+		"nested.parquet": nestedParquet(t),
+		"formula.xlsx":   formulaWorkbook(t), "shown.xlsx": shownWorkbook(t), "bomb.xlsx": claimingWorkbook(t),
 		"formula0.xlsx": emptyValueFormula(t, formulaWorkbook(t)), "sheets.xlsx": sheetsWorkbook(t),
 		"book.xlsx":      toWorkbook(t, []byte(strings.ReplaceAll(csv, "safety", "y"))),
 		"hiddencol.xlsx": hideColumns(t, toWorkbook(t, []byte(csv)), "survey", "B"),
@@ -564,6 +565,31 @@ func datesParquet(t *testing.T) []byte {
 	var b bytes.Buffer
 	w := parquet.NewGenericWriter[row](&b)
 	if _, err := w.Write([]row{{1, 0.5, 19000}, {2, -1, 19001}, {1, 2, 19002}, {2, 0, 19003}}); err != nil {
+		t.Fatal(err)
+	}
+	if err := w.Close(); err != nil {
+		t.Fatal(err)
+	}
+	return b.Bytes()
+}
+
+// nestedParquet is a Parquet file of an outcome y and a number a with
+// nested columns beside them: a list tags and a struct meta.
+func nestedParquet(t *testing.T) []byte {
+	t.Helper()
+	type meta struct {
+		Wave int32 `parquet:"wave"`
+	}
+	type row struct {
+		Tags []string `parquet:"tags,list"`
+		Y    int64    `parquet:"y"`
+		Meta meta     `parquet:"meta"`
+		A    float64  `parquet:"a"`
+	}
+	var b bytes.Buffer
+	w := parquet.NewGenericWriter[row](&b)
+	rows := []row{{[]string{"x", "z"}, 1, meta{1}, 0.5}, {nil, 2, meta{1}, -1}, {[]string{"x"}, 1, meta{2}, 2}, {[]string{}, 2, meta{2}, 0}, {[]string{"z"}, 1, meta{3}, 1}, {[]string{"x"}, 2, meta{3}, 1.5}}
+	if _, err := w.Write(rows); err != nil {
 		t.Fatal(err)
 	}
 	if err := w.Close(); err != nil {
@@ -1929,6 +1955,12 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`ordplan: cut.parquet: starts like a Parquet file but does not end like one (no PAR1 at its end, before which a Parquet file keeps the description of its columns): it is cut short, as by a copy or download that stopped; copy or write it again`}},
 		{id: "X30", name: "a Parquet file cut short, of a plan: at data.file", args: []string{"run"}, plan: edit("file: d.csv", "file: cut.parquet"), code: 1,
 			want: []string{`X30.yaml:3:9: data.file: the data file "cut.parquet" (looked for cut.parquet) starts like a Parquet file but does not end like one`}},
+		{id: "X31", name: "a nested Parquet column used as a predictor", args: fitArgs(d("nested.parquet"), "--predictors", "a,tags"), code: 1,
+			want: []string{`ordplan: nested.parquet: column "tags": is a list, a nested Parquet column, which ordplan does not read (it reads columns of one value per row): write "tags" as a flat column (one number or text per row), or leave it out of the plan`}},
+		{id: "X31", name: "a nested Parquet column read by a plan", args: []string{"check"}, plan: edit("file: d.csv", "file: nested.parquet", "predictors: [a, b]", "predictors: [a, meta]"), code: 1,
+			want: []string{`nested.parquet: column "meta": is a struct, a nested Parquet column, which ordplan does not read`}},
+		{id: "X31", name: "flat Parquet columns beside nested ones are read", args: fitArgs(d("nested.parquet"), "--predictors", "a"), code: 0,
+			want: []string{`nested.parquet: 6 rows read, 6 used`}},
 		{id: "X15", name: "a Parquet date column used as a number", args: fitArgs(d("dates.parquet"), "--predictors", "a,day"), code: 1,
 			want: []string{"ordplan: dates.parquet:2: column \"day\": value \"2022-01-08\" is not a number; it is a date: a predictor must be a number, so write it as one in a column of its own, such as the days or years since a start date, or declare the column categorical with its values as levels\n"}},
 		{id: "X16", name: "a workbook cell whose formula has no saved value", args: fitArgs(d("formula.xlsx"), "--predictors", "a"), code: 1,

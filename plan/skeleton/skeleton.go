@@ -44,6 +44,8 @@ func KindOf(p data.Profile, haveData bool) Kind {
 		miss = fmt.Sprintf("; %d of %d missing", p.Missing, p.Rows)
 	}
 	switch {
+	case p.Nested != "":
+		return Kind{Word: "nested", Describe: p.Nested + ", a nested Parquet column: not readable by ordplan (write it as a flat column to use it)"}
 	case p.Rows == p.Missing:
 		return Kind{Word: "empty", Describe: "every cell is missing" + miss}
 	case p.Numeric && p.Distinct == 2 && p.Min == 0 && p.Max == 1:
@@ -108,6 +110,8 @@ func Write(in Input) ([]byte, error) {
 		switch {
 		case c.Numeric && weightLike(c):
 			weighty = append(weighty, c.Name)
+		case kinds[i].Word == "nested":
+			// Described as not readable above; never a predictor.
 		case kinds[i].Word == "cluster?":
 			clustery = append(clustery, c.Name)
 		case kinds[i].Word == "numeric" && in.HaveData && constantValue(c) != "":
@@ -364,6 +368,9 @@ func (in Input) outcome(kinds []Kind) (int, bool, error) {
 		}
 		return -1, false, fmt.Errorf("--outcome: column %q is not in the file (its columns are %s)", in.Outcome, strings.Join(names, ", "))
 	}
+	if outcome >= 0 && in.Columns[outcome].Nested != "" {
+		return -1, false, fmt.Errorf("--outcome: column %q is %s, a nested Parquet column, which ordplan does not read: write it as a flat column (one value per row), or name another", in.Outcome, in.Columns[outcome].Nested)
+	}
 	if outcome >= 0 {
 		return outcome, false, nil
 	}
@@ -593,20 +600,22 @@ var (
 // idName), else the first column.
 func outcomeByName(cols []data.Profile) int {
 	for i, c := range cols {
-		if hasAny(strings.ToLower(c.Name), orderNames) {
+		if hasAny(strings.ToLower(c.Name), orderNames) && c.Nested == "" {
 			return i
 		}
 	}
 	for i, c := range cols {
 		name := strings.ToLower(c.Name)
-		if !hasAny(name, countNames) && !idName(c.Name) {
+		if !hasAny(name, countNames) && !idName(c.Name) && c.Nested == "" {
 			return i
 		}
 	}
-	if len(cols) == 0 {
-		return -1
+	for i, c := range cols {
+		if c.Nested == "" {
+			return i
+		}
 	}
-	return 0
+	return -1
 }
 
 // weightNames begin words of the names of weight columns (one or two

@@ -29,8 +29,14 @@ type columnRecords struct {
 	mark   byte // the dialect's decimal mark, for the texts of numbers
 	header []string
 	texts  []columnText // by column: the text of a value with a logical type (nil: cellText)
-	rows   int64        // rows in the file, as its metadata says
-	size   int64        // bytes of the file
+	// nested, by column: what a nested column is ("a list", ...; "" when
+	// flat); leaf, by column: its (first) leaf column in the file; byLeaf,
+	// by leaf column: the flat column it is (-1: part of a nested one)
+	nested []string
+	leaf   []int
+	byLeaf []int
+	rows   int64 // rows in the file, as its metadata says
+	size   int64 // bytes of the file
 	rd     *parquet.Reader
 	batch  []parquet.Row // rows read and not yet used: batch[at:]
 	at     int
@@ -38,9 +44,12 @@ type columnRecords struct {
 	done   bool // the file is read to its end
 }
 
-// openParquet opens a Parquet file read whole into raw. Only flat files
-// (no nested or repeated columns) are read. format says that msg is about
-// the file as a whole: not a Parquet file, or one broken or cut short.
+// openParquet opens a Parquet file read whole into raw. Its columns are
+// its top-level fields: a nested one (a list, a map, a struct or a
+// repeated value) is named in the header and never read (nested says what
+// it is; a plan reading it is refused, nestedUsed). format says that msg
+// is about the file as a whole: not a Parquet file, or one broken or cut
+// short.
 func openParquet(raw []byte) (rec *columnRecords, msg string, format bool) {
 	defer func() {
 		if p := recover(); p != nil {
@@ -70,13 +79,28 @@ func openParquet(raw []byte) (rec *columnRecords, msg string, format bool) {
 			stated[e.Name] = &e.LogicalType
 		}
 	}
-	for _, path := range cols {
-		if len(path) != 1 {
-			return nil, fmt.Sprintf("column %s is nested; only flat Parquet files (one value per column and row) are read", quoteCell(strings.Join(path, "."))), false
+	for li, path := range cols {
+		if len(rec.header) > 0 && rec.header[len(rec.header)-1] == path[0] && rec.nested[len(rec.header)-1] != "" {
+			continue // another leaf of the nested column just named
 		}
-		rec.header = append(rec.header, path[0])
 		leaf, _ := f.Schema().Lookup(path...)
+		rec.header = append(rec.header, path[0])
+		rec.leaf = append(rec.leaf, li)
+		rec.nested = append(rec.nested, nestedKind(f.Root().Column(path[0]), leaf))
+		if rec.nested[len(rec.nested)-1] != "" {
+			rec.texts = append(rec.texts, nil)
+			continue
+		}
 		rec.texts = append(rec.texts, logicalText(leaf.Node.Type(), stated[path[0]]))
+	}
+	rec.byLeaf = make([]int, len(cols))
+	for li := range rec.byLeaf {
+		rec.byLeaf[li] = -1
+	}
+	for ci, li := range rec.leaf {
+		if rec.nested[ci] == "" {
+			rec.byLeaf[li] = ci
+		}
 	}
 	rec.file, rec.mark = f, '.'
 	rec.rd = parquet.NewReader(f)
@@ -141,12 +165,11 @@ func (c *columnRecords) Read() ([]string, error) {
 
 // cells are the texts of a row's values.
 func (c *columnRecords) cells(row parquet.Row) ([]string, error) {
-	cells := make([]string, 0, len(row))
+	cells := make([]string, len(c.nested))
 	for _, v := range row {
-		if v.Column() != len(cells) {
-			return nil, &Error{Line: c.next + 1, Msg: "row has a repeated or nested value; only flat Parquet files are read"}
+		if li := v.Column(); li >= 0 && li < len(c.byLeaf) && c.byLeaf[li] >= 0 {
+			cells[c.byLeaf[li]] = c.text(c.byLeaf[li], v)
 		}
-		cells = append(cells, c.text(len(cells), v))
 	}
 	return cells, nil
 }
@@ -211,6 +234,42 @@ func fmtNum(x float64, mark byte) string {
 		s = strings.Replace(s, ".", string(mark), 1)
 	}
 	return s
+}
+
+// nestedKind says what a top-level field of a Parquet file is when it is
+// not one value per row (a list, a map, a struct, a repeated value), ""
+// when it is flat; first is its first leaf column.
+func nestedKind(field *parquet.Column, first parquet.LeafColumn) string {
+	var lt parquetformat.LogicalTypeValue
+	if t := field.Type().LogicalType(); t != nil {
+		lt = t.Value
+	}
+	_, list := lt.(*parquetformat.ListType)
+	_, isMap := lt.(*parquetformat.MapType)
+	switch {
+	case list:
+		return "a list"
+	case isMap:
+		return "a map"
+	case !field.Leaf() && field.Repeated():
+		return "a repeated group (a list of structs)"
+	case !field.Leaf():
+		return "a struct"
+	case field.Repeated() || first.MaxRepetitionLevel > 0:
+		return "a repeated value (a list)"
+	}
+	return ""
+}
+
+// nestedUsed refuses reading column index of the header, named name,
+// when it is a nested column of a Parquet file: its file, its name, what
+// it is and what to do. The one place that decides which columns of a
+// Parquet file ordplan reads (every other column is flat).
+func (r *reader) nestedUsed(name string, index int) error {
+	if c, ok := r.cr.(*columnRecords); ok && index < len(c.nested) && c.nested[index] != "" {
+		return r.fail(0, name, "is %s, a nested Parquet column, which ordplan does not read (it reads columns of one value per row): write %s as a flat column (one number or text per row), or leave it out of the plan", c.nested[index], quoteCell(name))
+	}
+	return nil
 }
 
 // FieldPos gives the row number counting the header as line 1, as in CSV.
@@ -378,10 +437,11 @@ type columnUnit struct {
 }
 
 // units cuts the file's rows into units; false when the file must be read
-// row by row (a repeated column, or row counts that do not add up).
+// row by row (a used column repeated, or row counts that do not add up).
 func (c *columnRecords) units(used []int) ([]columnUnit, bool) {
-	for _, path := range c.file.Schema().Columns() {
-		if leaf, ok := c.file.Schema().Lookup(path...); !ok || leaf.MaxRepetitionLevel > 0 {
+	paths := c.file.Schema().Columns()
+	for _, ci := range used {
+		if leaf, ok := c.file.Schema().Lookup(paths[c.leaf[ci]]...); !ok || leaf.MaxRepetitionLevel > 0 {
 			return nil, false
 		}
 	}
@@ -394,10 +454,10 @@ func (c *columnRecords) units(used []int) ([]columnUnit, bool) {
 		if n > unitRows {
 			step = unitRows
 			for _, ci := range used {
-				if ci >= len(chunks) {
+				if c.leaf[ci] >= len(chunks) {
 					return nil, false
 				}
-				if _, err := chunks[ci].OffsetIndex(); err != nil {
+				if _, err := chunks[c.leaf[ci]].OffsetIndex(); err != nil {
 					step = n // no page locations: seeking would decode every page before
 				}
 			}
@@ -544,7 +604,7 @@ func (cv *columnValues) read(buf []parquet.Value) error {
 // requiredDouble reports whether column ci of the file is a required
 // (never null) double.
 func (c *columnRecords) requiredDouble(ci int) bool {
-	leaf, ok := c.file.Schema().Lookup(c.file.Schema().Columns()[ci]...)
+	leaf, ok := c.file.Schema().Lookup(c.file.Schema().Columns()[c.leaf[ci]]...)
 	return ok && leaf.MaxDefinitionLevel == 0 && leaf.MaxRepetitionLevel == 0 && leaf.Node.Type().Kind() == parquet.Double
 }
 
@@ -565,7 +625,7 @@ func (r *reader) readUnit(c *columnRecords, u columnUnit, used []int, ch *chunk,
 	cols := make([]columnValues, len(used))
 	vals := make([][]parquet.Value, len(used))
 	for k, ci := range used {
-		cols[k].pages = chunks[ci].Pages()
+		cols[k].pages = chunks[c.leaf[ci]].Pages()
 		defer cols[k].close()
 		if err := cols[k].pages.SeekToRow(u.lo); err != nil {
 			return &Error{Msg: "is not a readable Parquet file (" + err.Error() + ")"}

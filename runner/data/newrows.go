@@ -93,6 +93,9 @@ func LoadNewRows(path string, predictors []string, levels map[string][]string, o
 		if !ok {
 			return nil, &Error{File: path, Column: c, Msg: notInHeader("", c, head)}
 		}
+		if err := r.nestedUsed(c, i); err != nil {
+			return nil, err
+		}
 		pos[j] = i
 		if _, cat := levels[c]; !cat || j >= len(predictors) {
 			r.readNumbers(c)

@@ -55,6 +55,9 @@ type Profile struct {
 	// Hidden: a workbook's column the sheet hides from view (read as data
 	// all the same).
 	Hidden bool
+	// Nested: what a Parquet file's nested column is ("a list", "a map",
+	// "a struct", ...), which ordplan does not read; "" for any other.
+	Nested string
 }
 
 // topLikeCodes are numbers that surveys conventionally write at the top
@@ -117,6 +120,11 @@ func ProfileSheet(path string, missingTokens []string, d Dialect) ([]Profile, *S
 		sheet = &read
 		for i := range p {
 			p[i].Hidden = sr.hiddenCols[sr.lead+i+1]
+		}
+	}
+	if cr, ok := r.cr.(*columnRecords); ok {
+		for i := range p {
+			p[i].Nested = cr.nested[i]
 		}
 	}
 	return p, sheet, err
