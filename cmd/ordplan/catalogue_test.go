@@ -386,8 +386,8 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		"cr.csv": []byte(strings.ReplaceAll(csv, "\n", "\r")), "two.csv": []byte(two.String()),
 		"bad.xlsx": append([]byte("PK\x03\x04"), bytes.Repeat([]byte{7}, 200)...), "notzip.xlsx": []byte(csv),
 		"bad.parquet": []byte("PAR1garbagegarbagePAR1"), "notpq.parquet": []byte(csv), "dates.parquet": datesParquet(t),
-		"nested.parquet": nestedParquet(t),
-		"formula.xlsx":   formulaWorkbook(t), "shown.xlsx": shownWorkbook(t), "bomb.xlsx": claimingWorkbook(t),
+		"nested.parquet": nestedParquet(t), "totals.xlsx": totalsWorkbook(t),
+		"formula.xlsx": formulaWorkbook(t), "shown.xlsx": shownWorkbook(t), "bomb.xlsx": claimingWorkbook(t),
 		"formula0.xlsx": emptyValueFormula(t, formulaWorkbook(t)), "sheets.xlsx": sheetsWorkbook(t),
 		"book.xlsx":      toWorkbook(t, []byte(strings.ReplaceAll(csv, "safety", "y"))),
 		"hiddencol.xlsx": hideColumns(t, toWorkbook(t, []byte(csv)), "survey", "B"),
@@ -430,6 +430,28 @@ func formulaWorkbook(t *testing.T) []byte {
 		}
 	}
 	f.SetCellFormula("Sheet1", "B3", "A3/4")
+	var b bytes.Buffer
+	if err := f.Write(&b); err != nil {
+		t.Fatal(err)
+	}
+	return b.Bytes()
+}
+
+// totalsWorkbook is a workbook of y, a and b in rows 1 to 7 with a row
+// of totals below, as spreadsheets add one: A8 empty, B8 =SUM(B2:B7),
+// C8 =SUM(C2:C7), their values saved.
+func totalsWorkbook(t *testing.T) []byte {
+	t.Helper()
+	f := excelize.NewFile()
+	defer f.Close()
+	for i, row := range [][]any{{"y", "a", "b"}, {1, 0.5, 1}, {2, 0.2, 0}, {1, 0.7, 1}, {2, 0.1, 1}, {1, 0.4, 0}, {2, 0.9, 1}, {nil, 2.8, 4}} {
+		cell, _ := excelize.CoordinatesToCellName(1, i+1)
+		if err := f.SetSheetRow("Sheet1", cell, &row); err != nil {
+			t.Fatal(err)
+		}
+	}
+	f.SetCellFormula("Sheet1", "B8", "SUM(B2:B7)")
+	f.SetCellFormula("Sheet1", "C8", "SUM(C2:C7)")
 	var b bytes.Buffer
 	if err := f.Write(&b); err != nil {
 		t.Fatal(err)
@@ -2021,6 +2043,8 @@ func catalogue(dir string) (items []badInput) {
 			}},
 		{id: "X24", name: "a workbook's sheet named that is empty", args: fitArgs(d("sheets.xlsx"), "--predictors", "a", "--sheet", "blank"), code: 1,
 			want: []string{"ordplan: sheets.xlsx: sheet \"blank\" is empty; the workbook's other sheets: \"notes\", \"data\", \"old\" (hidden) (data.sheet, or --sheet, names the one to read)\n"}},
+		{id: "X32", name: "a row of totals at the foot of a workbook's table", args: fitArgs(d("totals.xlsx"), "--predictors", "a,b"), code: 1,
+			want: []string{"ordplan: totals.xlsx:8: column \"a\": cell B8 of sheet \"Sheet1\" holds \"=SUM(B2:B7)\", which aggregates the column's own cells: row 8 looks like a row of totals, not a row of data, and would be read as one; delete the row, or move the totals to another sheet (a blank row above them does not end the table: blank rows are skipped and the rows below them read)\n"}},
 		{id: "X17", name: "a spreadsheet error value in a used column", args: fitArgs(d("formula.xlsx"), "--predictors", "b"), code: 1,
 			want: []string{`formula.xlsx:4: column "b": value "#DIV/0!" is not a number; it is a spreadsheet's error value: correct the formula that gave it, or list "#DIV/0!" among the missing-value markers (data.missing_values)`}},
 		{id: "X18", name: "a workbook's dates used as a number", args: fitArgs(d("shown.xlsx"), "--predictors", "a,day"), code: 1,

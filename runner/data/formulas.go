@@ -4,9 +4,12 @@ import (
 	"archive/zip"
 	"bytes"
 	"encoding/xml"
+	"fmt"
 	"html"
 	"io"
 	"path"
+	"regexp"
+	"slices"
 	"strings"
 
 	"github.com/xuri/excelize/v2"
@@ -117,47 +120,10 @@ func readXML(f *zip.File, v any) bool {
 // type str: savedValue), by the bytes: a sheet without formulas costs one
 // search.
 func scanFormulas(x []byte) map[int]map[int]string {
-	root := bytes.Index(x, []byte("worksheet"))
-	lt := bytes.LastIndexByte(x[:max(root, 0)], '<')
-	if root < 0 || lt < 0 {
-		return nil
-	}
-	prefix := string(x[lt+1 : root]) // "" or a namespace prefix such as "x:"
-	openF, openC, endC := []byte("<"+prefix+"f"), []byte("<"+prefix+"c "), []byte("</"+prefix+"c>")
-	openV, endF := []byte("<"+prefix+"v"), []byte("</"+prefix+"f>")
 	var out map[int]map[int]string
-	for at := 0; ; {
-		i := bytes.Index(x[at:], openF)
-		if i < 0 {
-			return out
-		}
-		i += at
-		at = i + len(openF)
-		if at >= len(x) || !(x[at] == '>' || x[at] == ' ' || x[at] == '/') {
-			continue // another element, such as <family>
-		}
-		e := bytes.Index(x[at:], endC)
-		s := bytes.LastIndex(x[:i], openC)
-		if e < 0 || s < 0 {
-			return out
-		}
-		cell := x[i : at+e]
-		tag := x[s:i]
-		if gt := bytes.IndexByte(tag, '>'); gt >= 0 {
-			tag = tag[:gt]
-		}
-		if t, _ := attr(tag[1:], "t"); savedValue(cell, openV, t == "str") {
-			continue
-		}
-		col, row, ok := cellRef(tag)
-		if !ok {
-			continue
-		}
-		text := "="
-		if gt := bytes.IndexByte(cell, '>'); gt > 0 && cell[gt-1] != '/' {
-			if end := bytes.Index(cell, endF); end > gt {
-				text += strings.TrimPrefix(html.UnescapeString(string(cell[gt+1:end])), "=")
-			}
+	eachFormula(x, func(col, row int, tag, cell []byte, prefix string) {
+		if t, _ := attr(tag[1:], "t"); savedValue(cell, []byte("<"+prefix+"v"), t == "str") {
+			return
 		}
 		if out == nil {
 			out = map[int]map[int]string{}
@@ -165,8 +131,61 @@ func scanFormulas(x []byte) map[int]map[int]string {
 		if out[row] == nil {
 			out[row] = map[int]string{}
 		}
-		out[row][col] = text
+		out[row][col] = "=" + strings.TrimPrefix(formulaBody(cell, prefix), "=")
+	})
+	return out
+}
+
+// eachFormula calls at for every formula cell of a worksheet's XML, by
+// the bytes: its column and row, the cell's start tag, its XML from the
+// formula on, and the namespace prefix ("" or such as "x:").
+func eachFormula(x []byte, at func(col, row int, tag, cell []byte, prefix string)) {
+	root := bytes.Index(x, []byte("worksheet"))
+	lt := bytes.LastIndexByte(x[:max(root, 0)], '<')
+	if root < 0 || lt < 0 {
+		return
 	}
+	prefix := string(x[lt+1 : root]) // "" or a namespace prefix such as "x:"
+	openF, openC, endC := []byte("<"+prefix+"f"), []byte("<"+prefix+"c "), []byte("</"+prefix+"c>")
+	for next := 0; ; {
+		i := bytes.Index(x[next:], openF)
+		if i < 0 {
+			return
+		}
+		i += next
+		next = i + len(openF)
+		if next >= len(x) || !(x[next] == '>' || x[next] == ' ' || x[next] == '/') {
+			continue // another element, such as <family>
+		}
+		e := bytes.Index(x[next:], endC)
+		s := bytes.LastIndex(x[:i], openC)
+		if e < 0 || s < 0 {
+			return
+		}
+		cell := x[i : next+e]
+		tag := x[s:i]
+		if gt := bytes.IndexByte(tag, '>'); gt >= 0 {
+			tag = tag[:gt]
+		}
+		if col, row, ok := cellRef(tag); ok {
+			at(col, row, tag, cell, prefix)
+		}
+	}
+}
+
+// formulaBody is the text of the formula element that starts cell (its
+// XML from the formula on), "" for an empty one (<f/>, as a cell sharing
+// another's formula has).
+func formulaBody(cell []byte, prefix string) string {
+	gt := bytes.IndexByte(cell, '>')
+	if gt <= 0 || cell[gt-1] == '/' {
+		return ""
+	}
+	end := bytes.Index(cell, []byte("</"+prefix+"f>"))
+	if end <= gt {
+		return ""
+	}
+	return html.UnescapeString(string(cell[gt+1 : end]))
 }
 
 // savedValue reports whether a cell's XML (from its formula on) holds
@@ -241,4 +260,162 @@ func formulaHint(cell, ref string) string {
 var spreadsheetErrors = map[string]bool{
 	"#N/A": true, "#DIV/0!": true, "#VALUE!": true, "#REF!": true, "#NAME?": true, "#NUM!": true, "#NULL!": true,
 	"#SPILL!": true, "#CALC!": true, "#GETTING_DATA": true,
+}
+
+// A row of totals at the foot of a table (=SUM(B2:B41) under column B)
+// is no data row: its cells hold sums, means or counts of the column, and
+// read as a case they would be predictors far out of range (an empty
+// outcome cell then imputed). Its cells are found by their formulas, not
+// their values.
+
+// totalFormulas finds the cells of the sheet below row h (the header
+// row asked for) whose formula aggregates a range of the cell's own
+// column (aggregateOver): sheet row -> column -> "=" and the formula.
+// A cell's own formula is read from the sheet's XML x, by the bytes (one
+// search when the sheet has no formulas); a cell that shares another's
+// formula (<f t="shared" si="0"/>), as a formula filled along a row is
+// saved, has it read through excelize, which spells it out for the cell
+// (GetCellFormula: =SUM(C2:C41) beside =SUM(B2:B41)), when the shared
+// formula's text calls an aggregating function over a range. Call it
+// before withoutRows.
+func totalFormulas(f *excelize.File, sheet string, x []byte, h int) map[int]map[int]string {
+	var out map[int]map[int]string
+	add := func(col, row int, formula string) {
+		if out == nil {
+			out = map[int]map[int]string{}
+		}
+		if out[row] == nil {
+			out[row] = map[int]string{}
+		}
+		out[row][col] = "=" + strings.TrimPrefix(formula, "=")
+	}
+	type shared struct {
+		col, row int
+		si       string
+	}
+	var sharing []shared
+	aggregates := map[string]bool{} // shared formulas that may aggregate a range
+	eachFormula(x, func(col, row int, tag, cell []byte, prefix string) {
+		gt := bytes.IndexByte(cell, '>')
+		if gt < 1 {
+			return
+		}
+		t, _ := attr(cell[1:gt], "t")
+		si, _ := attr(cell[1:gt], "si")
+		switch body := formulaBody(cell, prefix); {
+		case body != "":
+			if t == "shared" && sharedAggregate(body, col) {
+				aggregates[si] = true
+			}
+			if row > h && aggregateOver(body, col) {
+				add(col, row, body)
+			}
+		case t == "shared" && row > h:
+			sharing = append(sharing, shared{col, row, si})
+		}
+	})
+	for _, c := range sharing {
+		if !aggregates[c.si] {
+			continue
+		}
+		ref, err := excelize.CoordinatesToCellName(c.col, c.row)
+		if err != nil {
+			continue
+		}
+		if formula, err := f.GetCellFormula(sheet, ref); err == nil && aggregateOver(formula, c.col) {
+			add(c.col, c.row, formula)
+		}
+	}
+	return out
+}
+
+// aggregateCall finds a call of a function that sums, averages, counts
+// or otherwise aggregates a range.
+var aggregateCall = regexp.MustCompile(`(?i)(?:^|[^A-Z0-9_.])(?:_xlfn\.)?(?:SUM|SUBTOTAL|AGGREGATE|AVERAGE|AVERAGEA|COUNT|COUNTA|MIN|MAX|MEDIAN|PRODUCT|STDEV|STDEV\.S|STDEV\.P|VAR|VAR\.S|VAR\.P)\s*\(`)
+
+// cellRange finds a range of cells (B2:B41, $B$2:$B$41) or of whole
+// columns (B:B).
+var cellRange = regexp.MustCompile(`(?i)\$?([A-Z]{1,3})(\$?[0-9]+)?:\$?([A-Z]{1,3})(\$?[0-9]+)?`)
+
+// aggregateOver reports whether formula (as excelize reads it, with or
+// without its "=") calls an aggregating function (aggregateCall) and
+// holds a range of the sheet's own column col (1-based), not of another
+// sheet: the formula of a totals row's cell.
+func aggregateOver(formula string, col int) bool {
+	if !aggregateCall.MatchString(formula) {
+		return false
+	}
+	letters, err := excelize.ColumnNumberToName(col)
+	if err != nil {
+		return false
+	}
+	for _, m := range cellRange.FindAllStringSubmatchIndex(formula, -1) {
+		if m[0] > 0 && strings.ContainsRune("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789_.!'$", rune(formula[m[0]-1])) {
+			continue // part of a longer name, or of another sheet (Other!B2:B9)
+		}
+		if m[1] < len(formula) && strings.ContainsRune("ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789_.!(", rune(formula[m[1]])) {
+			continue
+		}
+		if (m[4] < 0) != (m[8] < 0) {
+			continue // B2:C, not a range
+		}
+		if strings.EqualFold(formula[m[2]:m[3]], letters) && strings.EqualFold(formula[m[6]:m[7]], letters) {
+			return true
+		}
+	}
+	return false
+}
+
+// sharedAggregate reports whether a shared formula, of text formula in
+// column col, may aggregate its own column in a cell that shares it: it
+// calls an aggregating function, and some range has each end in column
+// col (where a cell sharing it shifts a relative column as far as it
+// stands from col) or absolute ($B, which stays). A cumulative sum down
+// another column (=SUM($B$2:B2) in column D) cannot, so the cells
+// sharing it are not read one by one.
+func sharedAggregate(formula string, col int) bool {
+	if !aggregateCall.MatchString(formula) {
+		return false
+	}
+	letters, err := excelize.ColumnNumberToName(col)
+	if err != nil {
+		return false
+	}
+	end := func(from, to int) bool {
+		return from > 0 && formula[from-1] == '$' || strings.EqualFold(formula[from:to], letters)
+	}
+	for _, m := range cellRange.FindAllStringSubmatchIndex(formula, -1) {
+		if end(m[2], m[3]) && end(m[6], m[7]) {
+			return true
+		}
+	}
+	return false
+}
+
+// totalsRow refuses the data rows (below the header row) holding, in a
+// used column, a formula that aggregates the column (totalFormulas): the
+// first such cell by row, then by column, naming its cell, formula and
+// sheet and what to do. Columns the plan does not read are no matter.
+func (s *sheetRecords) totalsRow(cols []usedCol) *Error {
+	var rows []int
+	for row := range s.totals {
+		if row > s.headerLine {
+			rows = append(rows, row)
+		}
+	}
+	slices.Sort(rows)
+	for _, row := range rows {
+		var hit *usedCol
+		for i, c := range cols {
+			if _, ok := s.totals[row][s.lead+c.index+1]; ok && (hit == nil || c.index < hit.index) {
+				hit = &cols[i]
+			}
+		}
+		if hit == nil {
+			continue
+		}
+		ref, _ := excelize.CoordinatesToCellName(s.lead+hit.index+1, row)
+		return &Error{Line: row, Column: hit.name, Msg: fmt.Sprintf("cell %s of sheet %s holds %s, which aggregates the column's own cells: row %d looks like a row of totals, not a row of data, and would be read as one; delete the row, or move the totals to another sheet (a blank row above them does not end the table: blank rows are skipped and the rows below them read)", ref, quoteCell(s.read.Name), quoteCell(s.totals[row][s.lead+hit.index+1]), row)}
+	}
+	return nil
 }

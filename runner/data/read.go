@@ -189,12 +189,16 @@ func (r *reader) read(in io.Reader) (*Dataset, error) {
 // columnChecks are the checks of the used columns (r.cols, found in the
 // header) made before the rows are read, on a file, or on each part of
 // data held as parts (partRecords.checkPart): the used columns a
-// worksheet hides from view (markHidden), a nested column of a Parquet
-// file (nestedUsed), and points that may separate thousands
-// (thousandsPoints).
+// worksheet hides from view (markHidden), a row of totals in a worksheet
+// (totalsRow), a nested column of a Parquet file (nestedUsed), and points
+// that may separate thousands (thousandsPoints).
 func (r *reader) columnChecks() error {
 	if sr, ok := r.cr.(*sheetRecords); ok {
 		sr.markHidden(r.cols)
+		if e := sr.totalsRow(r.cols); e != nil {
+			e.File = r.file
+			return e
+		}
 	}
 	for _, c := range r.cols {
 		if err := r.nestedUsed(c.name, c.index); err != nil {

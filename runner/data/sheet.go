@@ -42,9 +42,13 @@ type sheetRecords struct {
 	// excelize): sheet row -> column -> the formula's text
 	// (unsavedFormulas), written into the rows in their place
 	formulas map[int]map[int]string
-	next     int
-	width    int // header width, once read
-	line     int // row number of the last record read
+	// totals: cells below the header row whose formula aggregates their
+	// own column, as a totals row's do: sheet row -> column -> the
+	// formula (totalFormulas), refused in a used column (totalsRow)
+	totals map[int]map[int]string
+	next   int
+	width  int // header width, once read
+	line   int // row number of the last record read
 	// hiddenRows are the sheet rows hidden from view (scanHiddenRows);
 	// read.HiddenRows counts those among the records read
 	hiddenRows map[int]bool
@@ -302,6 +306,7 @@ func readSheet(f *excelize.File, raw []byte, d Dialect) (*sheetRecords, string) 
 	files, x := workbookParts(raw, sheet)
 	if x != nil {
 		sr.formulas = scanFormulas(x)
+		sr.totals = totalFormulas(f, sheet, x, h)
 		sr.hiddenRows = scanHiddenRows(x)
 		scanBoolCells(x, func(col, row int) {
 			if row <= len(rows) && col <= len(rows[row-1]) {

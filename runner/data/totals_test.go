@@ -1,0 +1,88 @@
+package data
+
+import (
+	"bytes"
+	"strings"
+	"testing"
+
+	"github.com/xuri/excelize/v2"
+)
+
+// totalsBook is a workbook whose sheet "s" holds y, a, b, c, d in rows 1
+// to 7 and, in row 8, a row of totals as spreadsheets add them: the
+// outcome's cell empty, B8 =SUM(B2:B7), C8 sharing that formula (read
+// as =SUM(C2:C7)), D8 =AVERAGE(B2:B7) (another column's), each with its
+// value saved.
+func totalsBook(t testing.TB) []byte {
+	t.Helper()
+	f := excelize.NewFile()
+	defer f.Close()
+	f.SetSheetName("Sheet1", "s")
+	rows := [][]any{{"y", "a", "b", "c", "d"}, {1, 0.5, 1.0, 2, 1}, {2, 3.0, 2.0, 1, 2}, {1, 7.0, 3.0, 4, 3}, {2, 1.5, 4.0, 1, 4}, {1, -1.0, 0.0, 2, 5}, {2, 2.0, 1.0, 3, 6}, {nil, 13.0, 11.0, 13, 2.1667}}
+	for i, r := range rows {
+		cell, _ := excelize.CoordinatesToCellName(1, i+1)
+		if err := f.SetSheetRow("s", cell, &r); err != nil {
+			t.Fatal(err)
+		}
+	}
+	shared, ref := excelize.STCellFormulaTypeShared, "B8:C8"
+	if err := f.SetCellFormula("s", "B8", "SUM(B2:B7)", excelize.FormulaOpts{Type: &shared, Ref: &ref}); err != nil {
+		t.Fatal(err)
+	}
+	f.SetCellFormula("s", "D8", "AVERAGE(B2:B7)")
+	var b bytes.Buffer
+	if err := f.Write(&b); err != nil {
+		t.Fatal(err)
+	}
+	return b.Bytes()
+}
+
+// A row of totals is refused when a used column's cell aggregates the
+// column, naming the file, row, cell, formula and sheet and what to do,
+// whether or not its outcome would be imputed; a shared formula is read
+// as each cell's own; a formula over another column, in a column not
+// used, is no matter.
+func TestWorkbookTotalsRow(t *testing.T) {
+	raw := totalsBook(t)
+	for _, c := range []struct {
+		preds  []string
+		impute bool
+		want   string
+	}{
+		{[]string{"a"}, true, `t.xlsx:8: column "a": cell B8 of sheet "s" holds "=SUM(B2:B7)", which aggregates the column's own cells: row 8 looks like a row of totals, not a row of data, and would be read as one; delete the row, or move the totals to another sheet (a blank row above them does not end the table: blank rows are skipped and the rows below them read)`},
+		{[]string{"a"}, false, `t.xlsx:8: column "a": cell B8 of sheet "s" holds "=SUM(B2:B7)"`},
+		{[]string{"d", "b"}, true, `t.xlsx:8: column "b": cell C8 of sheet "s" holds "=SUM(C2:C7)", which aggregates`},
+	} {
+		opt := Options{Outcome: "y", Predictors: c.preds, Dialect: Dialect{Sheet: "s"}, KeepIncomplete: c.impute}
+		_, err := readBytes(raw, "t.xlsx", opt)
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%v: %v", c.preds, err)
+		}
+	}
+	d, err := readBytes(raw, "t.xlsx", Options{Outcome: "y", Predictors: []string{"d"}, Dialect: Dialect{Sheet: "s"}})
+	if err != nil || d.N != 6 {
+		t.Errorf("column d: %v %+v", err, d)
+	}
+}
+
+// aggregateOver tells a totals cell's formula by its function and its
+// range of the cell's own column (column 2, B).
+func TestAggregateOver(t *testing.T) {
+	for f, want := range map[string]bool{
+		"SUM(B2:B41)": true, "=SUBTOTAL(9,$B$2:$B$41)": true, "_xlfn.STDEV.S(B:B)": true,
+		"ROUND(AVERAGE(B2:B9),1)": true, "count(b2:b9)": true, "MAX(A2:A9,B2:B9)": true,
+		"SUM(Other!B2:B9)": false, "SUM(C2:C9)": false, "B2*2": false, "SUM(AB2:AB9)": false,
+		"IF(B2>0,1,0)": false, "SUM(B2:C9)": false, "VLOOKUP(A2,B2:B9,1)": false, "SUM(B2:B)": false,
+	} {
+		if got := aggregateOver(f, 2); got != want {
+			t.Errorf("%s: %v, want %v", f, got, want)
+		}
+	}
+	// A shared formula (of column 4, D) that a cell sharing it may spell
+	// as an aggregate of its own column.
+	for f, want := range map[string]bool{"SUM(D2:D9)": true, "SUM($B$2:$B$9)": true, "SUM($B$2:B2)": false, "SUM(B2:B9)": false, "D2*2": false} {
+		if got := sharedAggregate(f, 4); got != want {
+			t.Errorf("shared %s: %v, want %v", f, got, want)
+		}
+	}
+}
