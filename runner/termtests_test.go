@@ -77,20 +77,7 @@ func TestTermTestsAgainstGlm(t *testing.T) {
 	}
 	for _, tt := range or.TermTests {
 		name := want[tt.Term]
-		for _, c := range []struct {
-			kind string
-			got  fit.Test
-		}{{"lr", tt.LR}, {"wald", tt.Wald}} {
-			r := vals.Get(t, c.kind+"_"+name)
-			if !c.got.OK {
-				t.Errorf("%s %s: not computed: %s", tt.Term, c.kind, c.got.Reason)
-				continue
-			}
-			if d := math.Abs(c.got.Chi2 - r[0]); !(d <= 1e-6*math.Max(1, r[0])) || c.got.DF != int(r[1]) {
-				t.Errorf("%s %s: chi2(%d) = %.10g, glm chi2(%g) = %.10g", tt.Term, c.kind, c.got.DF, c.got.Chi2, r[1], r[0])
-			}
-			t.Logf("%s %s: chi2(%d) = %.8f, glm %.8f", tt.Term, c.kind, c.got.DF, c.got.Chi2, r[0])
-		}
+		agreesWithGlm(t, tt, name, vals)
 	}
 	// The rule for a term inside an interaction: tested with it.
 	if got := or.TermTests[0]; strings.Join(got.With, ",") != "infl&cont" || len(got.Columns) != 4 {
@@ -525,20 +512,7 @@ rules:
 		if !ok {
 			t.Fatalf("a test of %q", tt.Term)
 		}
-		for _, c := range []struct {
-			kind string
-			got  fit.Test
-		}{{"lr", tt.LR}, {"wald", tt.Wald}} {
-			r := vals.Get(t, c.kind+"_"+name)
-			if !c.got.OK {
-				t.Errorf("%s %s: not computed: %s", tt.Term, c.kind, c.got.Reason)
-				continue
-			}
-			if d := math.Abs(c.got.Chi2 - r[0]); !(d <= 1e-6*math.Max(1, r[0])) || c.got.DF != int(r[1]) {
-				t.Errorf("%s %s: chi2(%d) = %.10g, glm chi2(%g) = %.10g", tt.Term, c.kind, c.got.DF, c.got.Chi2, r[1], r[0])
-			}
-			t.Logf("%s %s: chi2(%d) = %.8f, glm %.8f", tt.Term, c.kind, c.got.DF, c.got.Chi2, r[0])
-		}
+		agreesWithGlm(t, tt, name, vals)
 	}
 	col := or.TermTests[2]
 	if col.Column == nil || *col.Column != "exposure" || strings.Join(col.With, ",") != "exposure,lexp" || strings.Join(col.Columns, ",") != "exposure,lexp" {
@@ -546,5 +520,26 @@ rules:
 	}
 	if or.TermTests[0].Column != nil || len(or.TermTests[0].With) != 0 {
 		t.Errorf("the term exposure is tested as %+v", or.TermTests[0])
+	}
+}
+
+// agreesWithGlm checks a term test's likelihood-ratio and Wald statistics
+// and degrees of freedom against those of base R's glm (vals: the R
+// script's lr_NAME and wald_NAME, each chi2 and df), to 1e-6 relative.
+func agreesWithGlm(t *testing.T, tt TermTest, name string, vals rscript.Values) {
+	t.Helper()
+	for _, c := range []struct {
+		kind string
+		got  fit.Test
+	}{{"lr", tt.LR}, {"wald", tt.Wald}} {
+		r := vals.Get(t, c.kind+"_"+name)
+		if !c.got.OK {
+			t.Errorf("%s %s: not computed: %s", tt.Term, c.kind, c.got.Reason)
+			continue
+		}
+		if d := math.Abs(c.got.Chi2 - r[0]); !(d <= 1e-6*math.Max(1, r[0])) || c.got.DF != int(r[1]) {
+			t.Errorf("%s %s: chi2(%d) = %.10g, glm chi2(%g) = %.10g", tt.Term, c.kind, c.got.DF, c.got.Chi2, r[1], r[0])
+		}
+		t.Logf("%s %s: chi2(%d) = %.8f, glm %.8f", tt.Term, c.kind, c.got.DF, c.got.Chi2, r[0])
 	}
 }

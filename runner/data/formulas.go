@@ -342,11 +342,8 @@ var cellRange = regexp.MustCompile(`(?i)\$?([A-Z]{1,3})(\$?[0-9]+)?:\$?([A-Z]{1,
 // holds a range of the sheet's own column col (1-based), not of another
 // sheet: the formula of a totals row's cell.
 func aggregateOver(formula string, col int) bool {
-	if !aggregateCall.MatchString(formula) {
-		return false
-	}
-	letters, err := excelize.ColumnNumberToName(col)
-	if err != nil {
+	letters, ok := aggregating(formula, col)
+	if !ok {
 		return false
 	}
 	for _, m := range cellRange.FindAllStringSubmatchIndex(formula, -1) {
@@ -374,11 +371,8 @@ func aggregateOver(formula string, col int) bool {
 // another column (=SUM($B$2:B2) in column D) cannot, so the cells
 // sharing it are not read one by one.
 func sharedAggregate(formula string, col int) bool {
-	if !aggregateCall.MatchString(formula) {
-		return false
-	}
-	letters, err := excelize.ColumnNumberToName(col)
-	if err != nil {
+	letters, ok := aggregating(formula, col)
+	if !ok {
 		return false
 	}
 	end := func(from, to int) bool {
@@ -418,4 +412,14 @@ func (s *sheetRecords) totalsRow(cols []usedCol) *Error {
 		return &Error{Line: row, Column: hit.name, Msg: fmt.Sprintf("cell %s of sheet %s holds %s, which aggregates the column's own cells: row %d looks like a row of totals, not a row of data, and would be read as one; delete the row, or move the totals to another sheet (a blank row above them does not end the table: blank rows are skipped and the rows below them read)", ref, quoteCell(s.read.Name), quoteCell(s.totals[row][s.lead+hit.index+1]), row)}
 	}
 	return nil
+}
+
+// aggregating is the letters of column col (1-based) when formula calls an
+// aggregating function (aggregateCall); ok is false otherwise.
+func aggregating(formula string, col int) (letters string, ok bool) {
+	if !aggregateCall.MatchString(formula) {
+		return "", false
+	}
+	letters, err := excelize.ColumnNumberToName(col)
+	return letters, err == nil
 }
