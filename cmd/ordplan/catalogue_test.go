@@ -296,6 +296,7 @@ func catalogueData(t *testing.T, dir string) {
 		"nantoken.csv":  "y,a,b\n1,0.5,1\n2,NaN,0\n3,0.1,0\n1,0.2,1\n3,0.8,0\n2,0.3,1\n1,0.9,0\n3,0.4,1\n",
 		"inf.csv":       "y,a,b\n1,0.5,1\n2,0.7,1\n3,-Inf,0\n",
 		"overflow.csv":  "y,a,b\n1,0.5,1\n2,1e999,1\n3,0.1,0\n",
+		"underflow.csv": "y,a,b\n1,0.5,1\n2,1e-400,1\n3,0.1,0\n",
 		"onecat.csv":    "y,a,b\n2,0.5,1\n2,0.7,0\n2,0.1,1\n",
 		"labels.csv":    "y,a,b\nlow,0.5,1\nmedium,0.7,0\nhigh,0.1,1\n",
 		"three.csv":     "y,a,b\n1,0.5,1\n2,0.7,0\n3,0.1,1\n",
@@ -1514,6 +1515,8 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`inf.csv:4: column "a": value "-Inf" is infinite`}},
 		{id: "D7", name: "number too large for a float", args: fitArgs(d("overflow.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`overflow.csv:3: column "a": value "1e999" is infinite (too large for a number)`}},
+		{id: "D56", name: "a nonzero number too small for a float", args: fitArgs(d("underflow.csv"), "--predictors", "a,b"), code: 1,
+			want: []string{`underflow.csv:3: column "a": value "1e-400" is too small for a number: it is not zero, but smaller in size than the smallest number held (about 4.9e-324), and would be read as 0; write 0 if zero is meant, or give the column in other units (or as its logarithm)`}},
 		{id: "D8", name: "outcome with one category", args: fitArgs(d("onecat.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`onecat.csv: column "y": only one category ("2") among the 3 kept rows; at least two are needed`},
 			check: func(t *testing.T, dir, out, errs string) {

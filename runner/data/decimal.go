@@ -24,7 +24,8 @@ var pow10u = [...]uint64{1, 10, 100, 1000, 10000, 100000, 1000000, 10000000, 100
 // at most one decimal mark (mark, '.' or ','), and an optional exponent (e
 // or E, an optional sign, digits). It reports false for anything else
 // (text, infinities, hexadecimal, underscores, a second mark, no digit)
-// and for a number beyond float64's range: the caller then takes the
+// and for a number beyond float64's range or below it (1e-400, which would read
+// as 0; a subnormal number is read): the caller then takes the
 // general path (Dialect.number), which words the message.
 //
 // The value is bit for bit the one strconv.ParseFloat gives for s (with a
@@ -238,7 +239,8 @@ func eightDigits(w uint64) uint64 {
 }
 
 // slowDecimal is strconv.ParseFloat of a plain decimal number (with a
-// decimal comma read as a point); false beyond float64's range.
+// decimal comma read as a point); false beyond float64's range, and for a
+// nonzero number that would read as 0 (1e-400), which parseNumber refuses.
 func slowDecimal(text string, mark byte) (float64, bool) {
 	if mark != '.' {
 		var buf [64]byte
@@ -253,8 +255,8 @@ func slowDecimal(text string, mark byte) (float64, bool) {
 		}
 	}
 	v, err := strconv.ParseFloat(text, 64)
-	if err != nil || math.IsInf(v, 0) {
-		return 0, false
+	if err != nil || math.IsInf(v, 0) || v == 0 && nonzeroDigit(text) {
+		return 0, false // beyond the range, or under it: parseNumber words it
 	}
 	return v, true
 }

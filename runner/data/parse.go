@@ -133,7 +133,26 @@ func parseNumber(cell string) (float64, string) {
 	if math.IsInf(v, 0) {
 		return 0, "value " + quoteCell(cell) + " is infinite"
 	}
+	if v == 0 && nonzeroDigit(cell) {
+		return 0, "value " + quoteCell(cell) + " is too small for a number: it is not zero, but smaller in size than the smallest number held (about 4.9e-324), and would be read as 0; write 0 if zero is meant, or give the column in other units (or as its logarithm)"
+	}
 	return v, ""
+}
+
+// nonzeroDigit reports whether the digits of a number's text before its
+// exponent, if any, hold one other than 0: a number that strconv reads as
+// 0 though it is written so has underflowed (1e-400). Subnormal numbers
+// (4e-320) are read as strconv reads them, to the nearest number held.
+func nonzeroDigit(cell string) bool {
+	for i := 0; i < len(cell); i++ {
+		switch c := cell[i]; {
+		case c == 'e' || c == 'E':
+			return false
+		case c >= '1' && c <= '9':
+			return true
+		}
+	}
+	return false
 }
 
 // parseCode parses a trimmed, non-missing outcome cell as an integer
