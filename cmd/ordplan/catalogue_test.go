@@ -2945,6 +2945,14 @@ func catalogue(dir string) (items []badInput) {
 			}},
 		{id: "Q5", name: "queue server unreachable", args: []string{"worker", "--queue", "nats://127.0.0.1:1"}, code: 1,
 			want: []string{"queue nats://127.0.0.1:1: cannot reach the queue server (nats: no servers available for connection): check that it runs at that address and that --queue names it"}},
+		{id: "Q26", name: "a worker's lines begin with its label", args: []string{"worker", "--queue", "nats://127.0.0.1:1", "--name", "w9"}, code: 1,
+			want: []string{"ordplan worker w9: queue nats://127.0.0.1:1: cannot reach the queue server"},
+			known: func(out, errs string, code int) string {
+				if strings.HasPrefix(errs, "ordplan: ") {
+					return "a worker's message began \"ordplan:\" as a coordinator's does: " + errs
+				}
+				return ""
+			}},
 		{id: "Q22", name: "queue server host name that does not resolve", args: []string{"worker", "--queue", "nats://no-such-host.invalid:4222"}, code: 1,
 			want: []string{"queue nats://no-such-host.invalid:4222: cannot find the queue server's host no-such-host.invalid (", "): check the host name in --queue, or give its address"}},
 		{id: "Q6", name: "queue URL with a scheme the server does not speak", args: []string{"worker", "--queue", "http://127.0.0.1:1"}, code: 1,

@@ -97,18 +97,25 @@ func run(args []string, stdout, stderr io.Writer) (code int) {
 	return exitUsage
 }
 
-// fail prints a one-line message and returns the failure code.
+// fail prints a one-line message begun "ordplan: " and returns the
+// failure code.
 func fail(stderr io.Writer, err error) int {
+	return failLines(stderr, "ordplan: ", err)
+}
+
+// failLines is fail with the lines begun by prefix (a worker's are begun
+// by its label by the writer itself: prefix "").
+func failLines(stderr io.Writer, prefix string, err error) int {
 	var ve *data.ValidationError
 	if errors.As(err, &ve) {
 		// One problem per line, each with its file, line and column.
 		for _, l := range strings.Split(err.Error(), "\n") {
-			fmt.Fprintf(stderr, "ordplan: %s\n", l)
+			fmt.Fprintf(stderr, "%s%s\n", prefix, l)
 		}
 		return exitFail
 	}
 	msg := strings.ReplaceAll(err.Error(), "\n", "; ")
-	fmt.Fprintf(stderr, "ordplan: %s\n", msg)
+	fmt.Fprintf(stderr, "%s%s\n", prefix, msg)
 	return exitFail
 }
 

@@ -38,8 +38,8 @@ func TestQueueLoginFile(t *testing.T) {
 		t.Error("the password is shown in the outputs or the logs")
 	}
 
-	_, errs, code := runCLI("worker", "--queue", url, "--queue-login", wrong, "--cache", t.TempDir())
-	want := "ordplan: queue " + url + ": the server refused the credentials, those of the login file (--queue-login) " + wrong + ": check them against the server's authorization settings"
+	_, errs, code := runCLI("worker", "--queue", url, "--queue-login", wrong, "--cache", t.TempDir(), "--name", "w-wrong")
+	want := "ordplan worker w-wrong: queue " + url + ": the server refused the credentials, those of the login file (--queue-login) " + wrong + ": check them against the server's authorization settings"
 	if code != exitFail || !strings.Contains(errs, want) || strings.Count(strings.TrimSpace(errs), "\n") != 0 || strings.Contains(errs, "hunter2") {
 		t.Errorf("a wrong password: exit %d:\n%s\nwant %s", code, errs, want)
 	}

@@ -119,11 +119,12 @@ type workerSignals struct {
 	second      os.Signal
 }
 
-// watchWorkerSignals starts catching the stop signals for the worker
-// name, telling log at the first what a second would do. log is stderr
-// with --quiet too: whoever pressed Ctrl-C must learn that the worker
-// goes on with its jobs and that a second press stops it at once.
-func watchWorkerSignals(name string, log io.Writer) *workerSignals {
+// watchWorkerSignals starts catching the stop signals of a worker,
+// telling log (the worker's stderr, its lines begun by its label) at the
+// first what a second would do. log is stderr with --quiet too: whoever
+// pressed Ctrl-C must learn that the worker goes on with its jobs and
+// that a second press stops it at once.
+func watchWorkerSignals(log io.Writer) *workerSignals {
 	stop, endStop := context.WithCancel(context.Background())
 	abort, endAbort := context.WithCancel(context.Background())
 	ws := &workerSignals{stop: stop, abort: abort, ch: make(chan os.Signal, 2)}
@@ -133,7 +134,7 @@ func watchWorkerSignals(name string, log io.Writer) *workerSignals {
 		if !ok {
 			return
 		}
-		fmt.Fprintf(log, "worker %s: asked to stop (%s): it takes no new job and finishes the jobs it started; stop it again (Ctrl-C, SIGTERM) to give them back unfinished and stop at once\n", name, signalName(s))
+		fmt.Fprintf(log, "asked to stop (%s): it takes no new job and finishes the jobs it started; stop it again (Ctrl-C, SIGTERM) to give them back unfinished and stop at once\n", signalName(s))
 		endStop()
 		s, ok = <-ws.ch
 		if !ok {

@@ -60,33 +60,41 @@ func runWorker(args []string, stdout, stderr io.Writer, hold time.Duration, hold
 		fmt.Fprintln(stderr, "ordplan worker: --max-starts, --max-iterations, --max-predictors and --max-data-mb must be at least 1")
 		return exitUsage
 	}
-	if *cache == "" {
-		dir, err := queue.DefaultCacheDir()
-		if err != nil {
-			return fail(stderr, fmt.Errorf("no cache folder (give --cache DIR): %v", err))
-		}
-		*cache = dir
-	}
 	if *name == "" {
 		host, _ := os.Hostname()
 		*name = fmt.Sprintf("%s-%d", host, os.Getpid())
 	}
-	cfg, err := qf.config("ordplan worker " + *name)
-	if err != nil {
+	// From here every line the worker writes begins with its label
+	// (queue.WorkerLines), as its log's lines do: a user reading the
+	// terminals of a coordinator and its workers tells them apart.
+	out := queue.WorkerLines(stderr, *name)
+	failed := func(err error) int { return failLines(out, "", err) }
+	if *cache == "" {
+		dir, err := queue.DefaultCacheDir()
+		if err != nil {
+			return failed(fmt.Errorf("no cache folder (give --cache DIR): %v", err))
+		}
+		*cache = dir
+	}
+	cfg, err := qf.config(queue.WorkerLabel(*name))
+	if errors.Is(err, errNoSecret) {
 		return usageOrFail("worker", err, stderr)
 	}
+	if err != nil {
+		return failed(err)
+	}
 	if err := queue.CacheUsable(*cache); err != nil {
-		return fail(stderr, err)
+		return failed(err)
 	}
 	var log io.Writer
 	if !*quiet {
-		log = stderr
+		log = stderr // the worker begins its lines with its label itself
 	}
-	sig := watchWorkerSignals(*name, stderr) // --quiet or not
+	sig := watchWorkerSignals(out) // --quiet or not
 	defer sig.end()
-	c, err := dialQueue(sig.stop, cfg, 0, stderr)
+	c, err := dialQueue(sig.stop, cfg, 0, out)
 	if err != nil {
-		return fail(stderr, err)
+		return failed(err)
 	}
 	w := &queue.Worker{Client: c, Name: *name, CacheDir: *cache, Jobs: *jobs, AckWait: *ackWait, Delay: hold, DelayKind: holdKind,
 		Limits: queue.Limits{Starts: *maxStarts, Iterations: *maxIter, Predictors: *maxPred, DataBytes: *maxData << 20},
@@ -97,11 +105,11 @@ func runWorker(args []string, stdout, stderr io.Writer, hold time.Duration, hold
 	if errors.As(err, &aborted) {
 		// A second stop signal: the jobs are not done, which the exit
 		// status says as an interrupted command's does (O8).
-		fmt.Fprintf(stderr, "ordplan worker: %v\n", err)
+		fmt.Fprintf(out, "%v\n", err)
 		return signalExit(sig.secondSignal())
 	}
 	if err != nil {
-		return fail(stderr, err)
+		return failed(err)
 	}
 	return exitOK
 }

@@ -72,9 +72,9 @@ func TestWorkerSecondSignalGivesJobsBack(t *testing.T) {
 			t.Errorf("%v: exit %d, want %d: %s", sig, code, 128+int(sig), log)
 		}
 		for _, want := range []string{
-			"worker " + name + ": asked to stop (" + map[syscall.Signal]string{syscall.SIGINT: "SIGINT", syscall.SIGTERM: "SIGTERM"}[sig] + "): it takes no new job and finishes the jobs it started; stop it again",
-			"worker " + name + ": gave back ordplan.jobs.",
-			"ordplan worker: worker " + name + ": stopped at once, asked a second time; it gave back the 1 job it had not finished: the server delivers it again to another worker (or to this one, started again), not counting this delivery against the job's limit",
+			"ordplan worker " + name + ": asked to stop (" + map[syscall.Signal]string{syscall.SIGINT: "SIGINT", syscall.SIGTERM: "SIGTERM"}[sig] + "): it takes no new job and finishes the jobs it started; stop it again",
+			"ordplan worker " + name + ": gave back ordplan.jobs.",
+			"ordplan worker " + name + ": stopped at once, asked a second time; it gave back the 1 job it had not finished: the server delivers it again to another worker (or to this one, started again), not counting this delivery against the job's limit",
 		} {
 			if !strings.Contains(log, want) {
 				t.Errorf("%v: no %q in the worker's log:\n%s", sig, want, log)
@@ -134,7 +134,7 @@ func TestQuietWorkerSaysWhatASecondSignalDoes(t *testing.T) {
 	if code := p.cmd.ProcessState.ExitCode(); code != exitOK {
 		t.Errorf("exit %d, want %d: %s", code, exitOK, p.stderr.String())
 	}
-	want := "worker w-quiet: asked to stop (SIGINT): it takes no new job and finishes the jobs it started; stop it again (Ctrl-C, SIGTERM) to give them back unfinished and stop at once\n"
+	want := "ordplan worker w-quiet: asked to stop (SIGINT): it takes no new job and finishes the jobs it started; stop it again (Ctrl-C, SIGTERM) to give them back unfinished and stop at once\n"
 	if got := p.stderr.String(); got != want {
 		t.Errorf("stderr of a quiet worker stopped once:\n%q\nwant\n%q", got, want)
 	}

@@ -23,7 +23,7 @@ func (w *Worker) compute(ctx context.Context, t *Task) (r *Reply) {
 	r = &Reply{Batch: t.Batch, Index: t.Index, ID: t.ID}
 	defer func() {
 		if p := recover(); p != nil {
-			w.logf("worker %s: %s: panic: %v\n%s", w.Name, t.jobName(), p, debug.Stack())
+			w.logf("%s: panic: %v\n%s", t.jobName(), p, debug.Stack())
 			r = &Reply{Batch: t.Batch, Index: t.Index, ID: t.ID, Fault: true, Err: fmt.Sprintf("%s: internal error on worker %s: %v", t.ID, w.Name, p)}
 		}
 	}()

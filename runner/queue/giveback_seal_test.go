@@ -63,7 +63,7 @@ func TestGiveBackHeadersSealed(t *testing.T) {
 		{"moved", "0", "1", "other", "0", "1", `its headers Ordplan-Deliveries-Counted: "0" and Ordplan-Given-Back: "1" do not match their seal`},
 	} {
 		publish(tc.batch, tc.counted, tc.back, tc.sealBatch, tc.sealCounted, tc.sealBack)
-		line := "worker w1: " + jobSubject(tc.batch, 0) + ": " + refusal + tc.want
+		line := "ordplan worker w1: " + jobSubject(tc.batch, 0) + ": " + refusal + tc.want
 		waitFor(t, 10*time.Second, tc.batch+": the job refused", func() bool { return strings.Contains(log.String(), line) })
 		if !strings.Contains(log.String(), advice) {
 			t.Errorf("%s: the refusal does not say what to check:\n%s", tc.batch, log)

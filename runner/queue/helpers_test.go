@@ -185,7 +185,7 @@ func TestWorkerSaysItStopped(t *testing.T) {
 		t.Fatal("worker did not stop")
 	}
 	lines := strings.Split(strings.TrimSpace(log.String()), "\n")
-	if last := lines[len(lines)-1]; last != "worker w1: stopped; it finished the jobs it had started first (a reply it could not store is logged above, and its job goes to another worker)" {
+	if last := lines[len(lines)-1]; last != "ordplan worker w1: stopped; it finished the jobs it had started first (a reply it could not store is logged above, and its job goes to another worker)" {
 		t.Errorf("last log line: %q", last)
 	}
 }

@@ -2,6 +2,7 @@ package queue
 
 import (
 	"bytes"
+	"io"
 	"strings"
 	"sync"
 )
@@ -30,4 +31,47 @@ func (l *LogBuffer) String() string {
 // Count returns how many times s was written.
 func (l *LogBuffer) Count(s string) int {
 	return strings.Count(l.String(), s)
+}
+
+// WorkerLabel is how every line a worker writes begins, before ": ": the
+// program, the command and the worker's name (by default host-pid), so
+// that a worker's lines are told apart from a coordinator's (which begin
+// "queue:" or "ordplan:") and from another worker's.
+func WorkerLabel(name string) string {
+	return "ordplan worker " + name
+}
+
+// WorkerLines returns a writer that starts every line written to out with
+// WorkerLabel(name) and ": ". Each complete line reaches out in one
+// Write; a line not yet ended waits for its end. Worker.Run writes its log
+// through it, and the worker command everything else it says.
+func WorkerLines(out io.Writer, name string) io.Writer {
+	if out == nil {
+		return nil
+	}
+	return &prefixed{out: out, prefix: []byte(WorkerLabel(name) + ": ")}
+}
+
+type prefixed struct {
+	mu      sync.Mutex
+	out     io.Writer
+	prefix  []byte
+	pending []byte
+}
+
+func (p *prefixed) Write(b []byte) (int, error) {
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	p.pending = append(p.pending, b...)
+	for {
+		i := bytes.IndexByte(p.pending, '\n')
+		if i < 0 {
+			return len(b), nil
+		}
+		line := append(append([]byte(nil), p.prefix...), p.pending[:i+1]...)
+		p.pending = p.pending[i+1:]
+		if _, err := p.out.Write(line); err != nil {
+			return len(b), err
+		}
+	}
 }

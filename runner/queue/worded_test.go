@@ -44,7 +44,7 @@ func TestAckWaitOfRunningWorkersKept(t *testing.T) {
 	q := newTestQueue(t, 30*time.Second)
 	startWorker(t, q.url, "w5s", 5*time.Second, 0)
 	log := startWorker(t, q.url, "w7s", 7*time.Second, 0)
-	want := "worker w7s: warning: --ack-wait 7s not taken: the workers running on this server have an ack wait of 5s, which this worker keeps to (the workers share it: a new value would apply to them too while their in-progress acknowledgements keep to theirs, and their long jobs would go to other workers as if they had died); to change it, stop every worker and start them all with the new value\nworker w7s: ready (1 at once, ack wait 5s;"
+	want := "ordplan worker w7s: warning: --ack-wait 7s not taken: the workers running on this server have an ack wait of 5s, which this worker keeps to (the workers share it: a new value would apply to them too while their in-progress acknowledgements keep to theirs, and their long jobs would go to other workers as if they had died); to change it, stop every worker and start them all with the new value\nordplan worker w7s: ready (1 at once, ack wait 5s;"
 	if !strings.Contains(log.String(), want) {
 		t.Errorf("got\n%s\nwant\n%s", log, want)
 	}

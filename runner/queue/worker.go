@@ -48,11 +48,14 @@ type Worker struct {
 	cache    *dataCache
 	parts    *partitionCache
 	logMu    sync.Mutex
+	out      io.Writer // Log, each line begun by the worker's label
 	interval time.Duration
 }
 
 // AbortedError is Run's error when Abort ended: the worker stopped without
-// finishing the jobs it had started, and gave them back.
+// finishing the jobs it had started, and gave them back. Its text does not
+// name the worker: the command writes it after the worker's label
+// (WorkerLines).
 type AbortedError struct {
 	Name     string
 	GaveBack int // jobs given back (giveBack)
@@ -67,7 +70,7 @@ func (e *AbortedError) Error() string {
 	default:
 		what = fmt.Sprintf("it gave back the %d jobs it had not finished: the server delivers them again to another worker (or to this one, started again), not counting these deliveries against the jobs' limit, and a waiting run gets their results from there", e.GaveBack)
 	}
-	return fmt.Sprintf("worker %s: stopped at once, asked a second time; %s", e.Name, what)
+	return "stopped at once, asked a second time; " + what
 }
 
 // Run processes jobs until ctx is cancelled. A job being computed when ctx
@@ -91,8 +94,8 @@ func (w *Worker) Run(ctx context.Context) error {
 		return err
 	}
 	if shared > 0 && shared != w.AckWait {
-		w.logf("worker %s: warning: --ack-wait %s not taken: the workers running on this server have an ack wait of %s, which this worker keeps to (the workers share it: a new value would apply to them too while their in-progress acknowledgements keep to theirs, and their long jobs would go to other workers as if they had died); to change it, stop every worker and start them all with the new value",
-			w.Name, w.AckWait, shared)
+		w.logf("warning: --ack-wait %s not taken: the workers running on this server have an ack wait of %s, which this worker keeps to (the workers share it: a new value would apply to them too while their in-progress acknowledgements keep to theirs, and their long jobs would go to other workers as if they had died); to change it, stop every worker and start them all with the new value",
+			w.AckWait, shared)
 		w.AckWait = shared
 	}
 	w.interval = max(w.AckWait/3, 50*time.Millisecond)
@@ -108,7 +111,7 @@ func (w *Worker) Run(ctx context.Context) error {
 	if err != nil {
 		return fmt.Errorf("worker consumer %s: %v", WorkerGroup, err)
 	}
-	w.logf("worker %s: ready (%d at once, ack wait %s; limits: %s)", w.Name, w.Jobs, w.AckWait, w.Limits)
+	w.logf("ready (%d at once, ack wait %s; limits: %s)", w.Jobs, w.AckWait, w.Limits)
 	var wg sync.WaitGroup
 	for range w.Jobs {
 		wg.Add(1)
@@ -123,7 +126,7 @@ func (w *Worker) Run(ctx context.Context) error {
 	}
 	// Run ends when ctx does (the command's interrupt): say so, so that the
 	// log of a stopped worker does not end as if it were waiting for jobs.
-	w.logf("worker %s: stopped; it finished the jobs it had started first (a reply it could not store is logged above, and its job goes to another worker)", w.Name)
+	w.logf("stopped; it finished the jobs it had started first (a reply it could not store is logged above, and its job goes to another worker)")
 	return nil
 }
 
@@ -158,7 +161,7 @@ func (w *Worker) loop(ctx context.Context, cons jetstream.Consumer) {
 		batch, err := cons.Fetch(1, jetstream.FetchMaxWait(time.Second))
 		if err != nil {
 			if ctx.Err() == nil {
-				w.logf("worker %s: fetch: %v", w.Name, err)
+				w.logf("fetch: %v", err)
 				sleep(ctx, time.Second)
 			}
 			continue
@@ -168,7 +171,7 @@ func (w *Worker) loop(ctx context.Context, cons jetstream.Consumer) {
 		}
 		if err := batch.Error(); err != nil && ctx.Err() == nil && !errors.Is(err, jetstream.ErrNoMessages) {
 			if !errors.Is(err, context.DeadlineExceeded) && !errors.Is(err, jetstream.ErrNoHeartbeat) {
-				w.logf("worker %s: fetch: %v", w.Name, err)
+				w.logf("fetch: %v", err)
 				sleep(ctx, time.Second)
 			}
 		}
@@ -196,13 +199,13 @@ func (w *Worker) refuse(ctx context.Context, msg jetstream.Msg, err error) {
 		delivered = md.NumDelivered
 	}
 	if errors.Is(err, errSealMismatch) && delivered < MaxDeliver {
-		w.logf("worker %s: %s: job refused: %v; left on the queue for a worker holding the coordinator's secret (delivery %d of at most %d, removed at the last): if this worker refuses every job, give it the coordinator's secret file (--queue-secret-file) and the coordinator's version of ordplan",
-			w.Name, msg.Subject(), err, delivered, MaxDeliver)
+		w.logf("%s: job refused: %v; left on the queue for a worker holding the coordinator's secret (delivery %d of at most %d, removed at the last): if this worker refuses every job, give it the coordinator's secret file (--queue-secret-file) and the coordinator's version of ordplan",
+			msg.Subject(), err, delivered, MaxDeliver)
 		msg.NakWithDelay(refusedRetryDelay)
 		sleep(ctx, refusedPause)
 		return
 	}
-	w.logf("worker %s: %s: job refused: %v", w.Name, msg.Subject(), err)
+	w.logf("%s: job refused: %v", msg.Subject(), err)
 	msg.TermWithReason("job refused: " + err.Error())
 }
 
@@ -236,7 +239,7 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 	if gaveBack > 0 {
 		back = ", after " + words.Count(gaveBack, "give-back by a stopped worker", "give-backs by stopped workers") + ", not counted"
 	}
-	w.logf("worker %s: started %s %s (delivery %d%s)", w.Name, msg.Subject(), t.jobName(), delivered, back)
+	w.logf("started %s %s (delivery %d%s)", msg.Subject(), t.jobName(), delivered, back)
 	start := time.Now()
 	stop := w.keepAlive(msg)
 	abort := w.abortContext()
@@ -244,7 +247,7 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 		stop()
 		w.abandoned.Add(1)
 		how := w.giveBack(msg, delivered, gaveBack)
-		w.logf("worker %s: gave back %s %s unfinished (%s)", w.Name, msg.Subject(), t.jobName(), how)
+		w.logf("gave back %s %s unfinished (%s)", msg.Subject(), t.jobName(), how)
 	}
 	if w.Delay > 0 && (w.DelayKind == "" || w.DelayKind == t.Kind) && !w.hold(abort, t) {
 		giveBack()
@@ -273,7 +276,7 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 		// stored as the reply only at the last delivery before the
 		// poison rule.
 		stop()
-		w.logf("worker %s: %s: %s (delivery %d; left for another try)", w.Name, t.jobName(), r.Err, delivered)
+		w.logf("%s: %s (delivery %d; left for another try)", t.jobName(), r.Err, delivered)
 		msg.NakWithDelay(faultRetryDelay)
 		return
 	}
@@ -292,12 +295,12 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 	stop()
 	switch {
 	case errors.Is(err, jetstream.ErrKeyExists):
-		w.logf("worker %s: %s: a reply was already stored; this duplicate is dropped", w.Name, t.jobName())
+		w.logf("%s: a reply was already stored; this duplicate is dropped", t.jobName())
 	case err != nil && w.aborted():
 		giveBack()
 		return
 	case err != nil:
-		w.logf("worker %s: %s: storing the reply: %v (job left for another try)", w.Name, t.jobName(), err)
+		w.logf("%s: storing the reply: %v (job left for another try)", t.jobName(), err)
 		msg.NakWithDelay(time.Second)
 		return
 	default:
@@ -305,10 +308,10 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 		if r.Err != "" {
 			status = "error: " + r.Err
 		}
-		w.logf("worker %s: done %s %s in %s: %s", w.Name, msg.Subject(), t.jobName(), time.Since(start).Round(time.Millisecond), status)
+		w.logf("done %s %s in %s: %s", msg.Subject(), t.jobName(), time.Since(start).Round(time.Millisecond), status)
 	}
 	if err := msg.DoubleAck(sctx); err != nil {
-		w.logf("worker %s: %s: acknowledging: %v", w.Name, t.jobName(), err)
+		w.logf("%s: acknowledging: %v", t.jobName(), err)
 	}
 }
 
@@ -476,17 +479,22 @@ func (w *Worker) aborted() bool {
 // hold waits Delay before job t is computed, saying so; false when ctx
 // (the abort) ended first.
 func (w *Worker) hold(ctx context.Context, t *Task) bool {
-	w.logf("worker %s: holding %s job %s for %s", w.Name, t.Kind, t.jobName(), w.Delay)
+	w.logf("holding %s job %s for %s", t.Kind, t.jobName(), w.Delay)
 	return sleep(ctx, w.Delay)
 }
 
+// logf writes a line of the worker's log, begun by its label
+// (WorkerLines).
 func (w *Worker) logf(format string, a ...any) {
 	if w.Log == nil {
 		return
 	}
 	w.logMu.Lock()
 	defer w.logMu.Unlock()
-	fmt.Fprintf(w.Log, format+"\n", a...)
+	if w.out == nil {
+		w.out = WorkerLines(w.Log, w.Name)
+	}
+	fmt.Fprintf(w.out, format+"\n", a...)
 }
 
 // sleep waits d or until ctx is done; it reports whether d passed.
