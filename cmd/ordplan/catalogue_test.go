@@ -387,7 +387,7 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		"cr.csv": []byte(strings.ReplaceAll(csv, "\n", "\r")), "two.csv": []byte(two.String()),
 		"bad.xlsx": append([]byte("PK\x03\x04"), bytes.Repeat([]byte{7}, 200)...), "notzip.xlsx": []byte(csv),
 		"bad.parquet": []byte("PAR1garbagegarbagePAR1"), "notpq.parquet": []byte(csv), "dates.parquet": datesParquet(t),
-		"nested.parquet": nestedParquet(t), "totals.xlsx": totalsWorkbook(t),
+		"nested.parquet": nestedParquet(t), "totals.xlsx": totalsWorkbook(t), "levels.xlsx": levelsWorkbook(t),
 		"formula.xlsx": formulaWorkbook(t), "shown.xlsx": shownWorkbook(t), "bomb.xlsx": claimingWorkbook(t),
 		"formula0.xlsx": emptyValueFormula(t, formulaWorkbook(t)), "sheets.xlsx": sheetsWorkbook(t),
 		"book.xlsx":      toWorkbook(t, []byte(strings.ReplaceAll(csv, "safety", "y"))),
@@ -443,21 +443,43 @@ func formulaWorkbook(t *testing.T) []byte {
 // C8 =SUM(C2:C7), their values saved.
 func totalsWorkbook(t *testing.T) []byte {
 	t.Helper()
+	return bookOf(t, [][]any{{"y", "a", "b"}, {1, 0.5, 1}, {2, 0.2, 0}, {1, 0.7, 1}, {2, 0.1, 1}, {1, 0.4, 0}, {2, 0.9, 1}, {nil, 2.8, 4}}, func(f *excelize.File) {
+		f.SetCellFormula("Sheet1", "B8", "SUM(B2:B7)")
+		f.SetCellFormula("Sheet1", "C8", "SUM(C2:C7)")
+	})
+}
+
+// bookOf is a workbook whose sheet Sheet1 holds rows from A1, numbers as
+// numbers, changed by more (if not nil) before it is written.
+func bookOf(t *testing.T, rows [][]any, more func(*excelize.File)) []byte {
+	t.Helper()
 	f := excelize.NewFile()
 	defer f.Close()
-	for i, row := range [][]any{{"y", "a", "b"}, {1, 0.5, 1}, {2, 0.2, 0}, {1, 0.7, 1}, {2, 0.1, 1}, {1, 0.4, 0}, {2, 0.9, 1}, {nil, 2.8, 4}} {
+	for i, row := range rows {
 		cell, _ := excelize.CoordinatesToCellName(1, i+1)
 		if err := f.SetSheetRow("Sheet1", cell, &row); err != nil {
 			t.Fatal(err)
 		}
 	}
-	f.SetCellFormula("Sheet1", "B8", "SUM(B2:B7)")
-	f.SetCellFormula("Sheet1", "C8", "SUM(C2:C7)")
+	if more != nil {
+		more(f)
+	}
 	var b bytes.Buffer
 	if err := f.Write(&b); err != nil {
 		t.Fatal(err)
 	}
 	return b.Bytes()
+}
+
+// levelsWorkbook holds, in its column x, the numbers 2.5, 3 and 4.25 as
+// number cells, to be declared as the levels of a categorical predictor.
+func levelsWorkbook(t *testing.T) []byte {
+	t.Helper()
+	rows := [][]any{{"y", "x"}}
+	for i := 0; i < 24; i++ {
+		rows = append(rows, []any{1 + i%3, []float64{2.5, 3, 4.25}[i*7%3]})
+	}
+	return bookOf(t, rows, nil)
 }
 
 // emptyValueFormula is the workbook raw (formulaWorkbook) with its
@@ -2048,6 +2070,14 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{"ordplan: sheets.xlsx: sheet \"blank\" is empty; the workbook's other sheets: \"notes\", \"data\", \"old\" (hidden) (data.sheet, or --sheet, names the one to read)\n"}},
 		{id: "X32", name: "a row of totals at the foot of a workbook's table", args: fitArgs(d("totals.xlsx"), "--predictors", "a,b"), code: 1,
 			want: []string{"ordplan: totals.xlsx:8: column \"a\": cell B8 of sheet \"Sheet1\" holds \"=SUM(B2:B7)\", which aggregates the column's own cells: row 8 looks like a row of totals, not a row of data, and would be read as one; delete the row, or move the totals to another sheet (a blank row above them does not end the table: blank rows are skipped and the rows below them read)\n"}},
+		{id: "D57", name: "a workbook's numbers under a decimal comma against levels written with a point", args: fitArgs(d("levels.xlsx"), "--predictors", "x|levels=2.5/3/4.25", "--decimal", "comma"), code: 1,
+			want: []string{`levels.xlsx:2: column "x": value "2,5" is not one of the declared levels of this categorical predictor: "2.5", "3", "4.25" (the cell is a number, which data.decimal: comma writes "2,5", as it writes every number of a workbook or Parquet file before comparing it with the declared levels; write the level "2,5", or remove data.decimal: comma)`}},
+		{id: "D57", name: "a workbook's numbers under a decimal point against levels written with a comma", args: []string{"check"},
+			plan: edit("file: d.csv", "file: levels.xlsx", "predictors: [a, b]", "predictors: [x]\ncategorical:\n  x: {levels: [\"2,5\", \"3\", \"4,25\"]}"), code: 1,
+			want: []string{`levels.xlsx:2: column "x": value "2.5" is not one of the declared levels of this categorical predictor: "2,5", "3", "4,25" (the cell is a number, compared with the declared levels as "2.5"; the level "2,5" writes it with a decimal comma, which a workbook's or Parquet file's numbers take only under data.decimal: comma: write the level "2.5", or set data.decimal: comma)`}},
+		{id: "D57", name: "a workbook's numbers under a decimal comma match levels written with a comma", args: []string{"check"},
+			plan: edit("file: d.csv", "file: levels.xlsx\n  decimal: comma", "predictors: [a, b]", "predictors: [x]\ncategorical:\n  x: {levels: [\"2,5\", \"3\", \"4,25\"]}"), code: 0,
+			want: []string{`plan is valid`}},
 		{id: "X17", name: "a spreadsheet error value in a used column", args: fitArgs(d("formula.xlsx"), "--predictors", "b"), code: 1,
 			want: []string{`formula.xlsx:4: column "b": value "#DIV/0!" is not a number; it is a spreadsheet's error value: correct the formula that gave it, or list "#DIV/0!" among the missing-value markers (data.missing_values)`}},
 		{id: "X18", name: "a workbook's dates used as a number", args: fitArgs(d("shown.xlsx"), "--predictors", "a,day"), code: 1,

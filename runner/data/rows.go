@@ -417,6 +417,9 @@ func (r *reader) parseRow(t *rowTally, rec []string) (cells, error) {
 				if !ok {
 					hint := formulaHint(cell, ref)
 					if hint == "" {
+						hint = r.markLevelHint(cell, opt.PredictorLevels[c.name])
+					}
+					if hint == "" {
 						hint = levelHint(cell, opt.PredictorLevels[c.name], "level", "write the levels as the data do")
 					}
 					if hint == "" {
@@ -1310,6 +1313,37 @@ func levelHint(cell string, levels []string, what, remedy string) string {
 		if k := LooseText(l); k != "" && k == LooseText(cell) {
 			return like(l)
 		}
+	}
+	return ""
+}
+
+// markLevelHint says, of a cell of a workbook or Parquet file that is not
+// one of a categorical predictor's declared levels but is the number a
+// level writes with the other decimal mark (the cell read as "2,5" under
+// data.decimal: comma, the level "2.5"; or the reverse), that the file's
+// numbers, typed as numbers, are compared with the levels as data.decimal
+// writes them, and which level to write; "" otherwise. A CSV file's cells
+// are text as written, which levelHint speaks of.
+func (r *reader) markLevelHint(cell string, levels []string) string {
+	if !IsWorkbook(r.file) && !IsParquet(r.file) {
+		return ""
+	}
+	d := r.opt.Dialect
+	if _, msg := d.number(cell); msg != "" {
+		return ""
+	}
+	from, to := ",", "."
+	if d.DecimalComma {
+		from, to = ".", ","
+	}
+	for _, l := range levels {
+		if !strings.Contains(l, from) || strings.Replace(strings.TrimSpace(l), from, to, 1) != cell {
+			continue
+		}
+		if d.DecimalComma {
+			return fmt.Sprintf(" (the cell is a number, which data.decimal: comma writes %s, as it writes every number of a workbook or Parquet file before comparing it with the declared levels; write the level %s, or remove data.decimal: comma)", quoteCell(cell), quoteCell(cell))
+		}
+		return fmt.Sprintf(" (the cell is a number, compared with the declared levels as %s; the level %s writes it with a decimal comma, which a workbook's or Parquet file's numbers take only under data.decimal: comma: write the level %s, or set data.decimal: comma)", quoteCell(cell), quoteCell(l), quoteCell(cell))
 	}
 	return ""
 }
