@@ -3,6 +3,7 @@ package render
 import (
 	"fmt"
 	"slices"
+	"strings"
 
 	"ordplan/internal/words"
 	"ordplan/plan/lock"
@@ -114,6 +115,9 @@ func writeLockStatus(d *doc, st *lock.Status, version string, w lockWords, earli
 		key, to := mdCode(c.Path), codeCell(c.To)
 		if c.Moved != "" {
 			key, to = key+", moved from "+mdCode(c.Moved), "the same (moved)"
+			if len(c.Keys) > 0 {
+				to = codeCell(c.To) + "; changed in it: " + keyChanges(c.Keys)
+			}
 		}
 		rows = append(rows, []string{md(key), md(codeCell(c.From)), md(to), reason})
 	}
@@ -125,6 +129,16 @@ func writeLockStatus(d *doc, st *lock.Status, version string, w lockWords, earli
 		d.p("The lock was written by ordplan %s and this is ordplan %s: a key that the newer program adds to the canonical form shows as a change from (absent) although the plan file did not change.", f.Version, version)
 	}
 	writeUnusedDeviations(d, st)
+}
+
+// keyChanges writes the keys that changed within an item that moved
+// (lock.Change.Keys), each with both values: "`alpha`: `0.05` → `0.01`".
+func keyChanges(keys []lock.Change) string {
+	out := make([]string, len(keys))
+	for i, k := range keys {
+		out[i] = fmt.Sprintf("%s: %s → %s", mdCode(k.Path), codeCell(k.From), codeCell(k.To))
+	}
+	return strings.Join(out, "; ")
 }
 
 func codeCell(s string) string {

@@ -93,7 +93,11 @@ func writeSensitivity(d *doc, r *runner.Result) {
 		var ch []string
 		for _, c := range sensitivityChanges(r, s) {
 			if c.Moved != "" {
-				ch = append(ch, fmt.Sprintf("%s: moved from %s (unchanged)", mdCode(c.Path), mdCode(c.Moved)))
+				what := "(unchanged)"
+				if len(c.Keys) > 0 {
+					what = "and changed: " + keyChanges(c.Keys)
+				}
+				ch = append(ch, fmt.Sprintf("%s: moved from %s %s", mdCode(c.Path), mdCode(c.Moved), what))
 				continue
 			}
 			ch = append(ch, fmt.Sprintf("%s: %s → %s", mdCode(c.Path), mdCode(c.From), mdCode(c.To)))
@@ -529,7 +533,14 @@ func sinceFrozenNote(r *runner.Result, i int) string {
 	} else {
 		var keys []string
 		for _, c := range ch {
-			keys = append(keys, mdCode(c.Path))
+			if c.Moved == "" {
+				keys = append(keys, mdCode(c.Path))
+				continue
+			}
+			for _, k := range c.Keys {
+				keys = append(keys, mdCode(c.Path+"."+k.Path))
+			}
+			keys = append(keys, "moved from "+mdCode(c.Moved))
 		}
 		s = "Changed after the plan was frozen (" + strings.Join(keys, ", ") + ")"
 	}

@@ -66,6 +66,59 @@ func TestFreezeRunDeviations(t *testing.T) {
 	}
 }
 
+// A rule moved and changed after freezing is one deviation: the report's
+// table and decisions.json name its place then and now and each key that
+// changed in it with both values, and a reason stated for the key that
+// changed (at its place now) explains it.
+func TestFreezeRunMovedAndChangedRule(t *testing.T) {
+	dir, planPath, src := deviationStudy(t)
+	src = strings.Replace(src, "  - choose: {by: aic}\n", "  - reject_if_sparse: {per_parameter: 5, smallest_category: 2}\n  - reject_if_test_rejects: {test: lr, alpha: 0.05}\n  - choose: {by: aic}\n", 1)
+	os.WriteFile(planPath, []byte(src), 0o644)
+	if _, errs, code := runCLI("freeze", planPath); code != 0 {
+		t.Fatalf("freeze: %d %s", code, errs)
+	}
+	moved := strings.Replace(src, "  - reject_if_sparse: {per_parameter: 5, smallest_category: 2}\n  - reject_if_test_rejects: {test: lr, alpha: 0.05}\n", "  - reject_if_test_rejects: {test: lr, alpha: 0.05}\n  - reject_if_sparse: {per_parameter: 4, smallest_category: 2}\n", 1)
+	os.WriteFile(planPath, []byte(moved), 0o644)
+	o := filepath.Join(dir, "out")
+	if _, errs, code := runCLI("run", planPath, "--out", o, "--quiet"); code != 1 || !strings.Contains(errs, "in 1 key without a stated reason:\n  rules[2]: moved from rules[1], changed: reject_if_sparse.per_parameter 5 -> 4\n") {
+		t.Fatalf("without a reason: %d %s", code, errs)
+	}
+	os.WriteFile(planPath, []byte(moved+"deviations:\n  - key: rules[2].reject_if_sparse.per_parameter\n    reason: four, as the protocol says\n"), 0o644)
+	if _, errs, code := runCLI("run", planPath, "--out", o, "--quiet"); code != 0 {
+		t.Fatalf("with a reason: %d %s", code, errs)
+	}
+	md, _ := os.ReadFile(filepath.Join(o, "report.md"))
+	row := "| `rules[2]`, moved from `rules[1]` | `{\"reject_if_sparse\": {\"per_parameter\": 5, \"smallest_category\": 2}}` | `{\"reject_if_sparse\": {\"per_parameter\": 4, \"smallest_category\": 2}}`; changed in it: `reject_if_sparse.per_parameter`: `5` → `4` | four, as the protocol says |"
+	if !strings.Contains(string(md), "in 1 key of the canonical form") || !strings.Contains(string(md), row) {
+		t.Errorf("report lacks the row\n%s\n%s", row, md)
+	}
+	var dec struct {
+		Registration struct {
+			State   string `json:"state"`
+			Changes []struct {
+				Key, From, To, Reason string
+				MovedFrom             string `json:"moved_from"`
+				ChangedKeys           []struct {
+					Key, From, To string
+				} `json:"changed_keys"`
+			} `json:"changes"`
+		} `json:"registration"`
+	}
+	b, _ := os.ReadFile(filepath.Join(o, "decisions.json"))
+	if err := json.Unmarshal(b, &dec); err != nil {
+		t.Fatal(err)
+	}
+	g := dec.Registration
+	if g.State != "deviations" || len(g.Changes) != 1 {
+		t.Fatalf("registration: %+v", g)
+	}
+	c := g.Changes[0]
+	if c.Key != "rules[2]" || c.MovedFrom != "rules[1]" || c.Reason != "four, as the protocol says" || len(c.ChangedKeys) != 1 ||
+		c.ChangedKeys[0].Key != "reject_if_sparse.per_parameter" || c.ChangedKeys[0].From != "5" || c.ChangedKeys[0].To != "4" {
+		t.Errorf("decisions.json change: %+v", c)
+	}
+}
+
 func itoa(i int) string { return strconv.Itoa(i) }
 
 // deviationStudy writes an invented three-category study of 90 rows

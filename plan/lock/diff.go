@@ -5,6 +5,8 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"maps"
+	"math"
 	"slices"
 	"strconv"
 	"strings"
@@ -20,19 +22,30 @@ type Change struct {
 	// key: the change is part of that key's, whose reason it takes.
 	Follows string `json:"follows,omitempty"`
 	// Moved is, for an item of a list of mappings (a rule, a sensitivity
-	// analysis) that moved unchanged, its key in the frozen list: Path is
-	// its key now, and From and To are the same text.
+	// analysis) that moved, its key in the frozen list: Path is its key
+	// now, From and To its whole text then and now (the same text when
+	// it moved unchanged).
 	Moved string `json:"moved_from,omitempty"`
+	// Keys are, for an item that moved and changed, the keys that changed
+	// in it, each relative to the item (reject_if_sparse.per_parameter).
+	Keys []Change `json:"changed_keys,omitempty"`
 }
 
 // Transition writes what changed at the key, as messages and records
-// list it: "FROM -> TO", or for an item that moved unchanged "moved from
-// KEY, unchanged: TEXT".
+// list it: "FROM -> TO", or for an item that moved "moved from KEY,
+// unchanged: TEXT" or "moved from KEY, changed: K1 FROM -> TO; K2 ...".
 func (c Change) Transition() string {
-	if c.Moved != "" {
+	if c.Moved == "" {
+		return c.From + " -> " + c.To
+	}
+	if len(c.Keys) == 0 {
 		return "moved from " + c.Moved + ", unchanged: " + c.To
 	}
-	return c.From + " -> " + c.To
+	keys := make([]string, len(c.Keys))
+	for i, k := range c.Keys {
+		keys[i] = k.Path + " " + k.Transition()
+	}
+	return "moved from " + c.Moved + ", changed: " + strings.Join(keys, "; ")
 }
 
 // Absent marks a key that one side does not have.
@@ -98,75 +111,261 @@ func diffValues(path string, a, b *value, out *[]Change) {
 // diffItems compares two lists of mappings item by item. Items equal in
 // both lists are matched first (a longest common subsequence), so that a
 // removed or inserted item reads as one item removed or added, not as a
-// change of every item after it. Between matched items, as many items on
-// each side are compared in pairs, key by key; otherwise items with the
-// same keys (rules of one kind, outcomes) are matched the same way and
-// compared key by key, under their index in the current list, and the
-// items left over are removed (named by their index in the frozen list)
-// or added (by their index in the current one).
+// change of every item after it. Of the items left, one of the frozen list
+// and one of the current list are the same item (sameItems):
+//   - with the same text: the item moved unchanged;
+//   - otherwise, for items with a name (a sensitivity analysis's name, a
+//     predictor's; an outcome's column), the same name;
+//   - for items without one (rules), the same kind (the same keys) with
+//     at least as many of their values unchanged as changed, each the
+//     other's only best match (no other item of either list as close).
+//
+// Such a pair whose place among the items kept changed (its two items lie
+// after different numbers of kept items, or it crosses another pair of
+// the same item changed) moved: one change
+// (Change.Moved) at the current index, naming the frozen index and the
+// keys that changed in it (Change.Keys). A pair that kept its place is
+// compared key by key under its index in the current list. Of the items
+// left over between two kept items, as many on each side are compared in
+// pairs, key by key; otherwise items with the same keys are matched as the
+// kept items are and compared key by key, and the rest are removed (named
+// by their index in the frozen list) or added (by their index in the
+// current one). A rule removed and another of its kind added elsewhere,
+// sharing fewer values than they differ in, stay one removed and one added.
 func diffItems(path string, a, b []*value, out *[]Change) {
-	start := len(*out)
-	defer func() { *out = append((*out)[:start], moves((*out)[start:], path)...) }()
 	at := func(i int) string { return fmt.Sprintf("%s[%d]", path, i) }
 	same := func(x, y *value) bool { return x.text == y.text }
 	alike := func(x, y *value) bool { return x.object && y.object && slices.Equal(sortedKeys(x), sortedKeys(y)) }
-	// gap compares a[i0:i1] with b[j0:j1], which share no equal item.
-	gap := func(i0, i1, j0, j1 int) {
-		if i1-i0 == j1-j0 {
-			for k := range i1 - i0 {
-				diffValues(at(j0+k), a[i0+k], b[j0+k], out)
+	pa, pb := unpaired(len(a)), unpaired(len(b))
+	walk(a, b, same, func(i, j int) {
+		if i >= 0 && j >= 0 {
+			pa[i], pb[j] = j, i
+		}
+	})
+	// gap numbers the stretches between kept items: an item lies in the
+	// stretch after as many kept items as come before it.
+	gap := func(p []int) []int {
+		g, k := make([]int, len(p)), 0
+		for i, q := range p {
+			g[i] = k
+			if q >= 0 {
+				k++
+			}
+		}
+		return g
+	}
+	ga, gb := gap(pa), gap(pb)
+	moved := map[int]bool{} // by index in b
+	var kept [][2]int       // the same item changed in its place
+	for _, q := range sameItems(a, b, pa, pb) {
+		i, j := q[0], q[1]
+		if a[i].text == b[j].text || ga[i] != gb[j] {
+			moved[j] = true
+			continue
+		}
+		kept = append(kept, q)
+	}
+	for _, q := range kept {
+		for _, r := range kept {
+			if (r[0]-q[0])*(r[1]-q[1]) < 0 {
+				moved[q[1]] = true
+			}
+		}
+	}
+	// The items of one stretch left unmatched: compared as before.
+	rest := func(ai, bj []int) {
+		if len(ai) == len(bj) {
+			for k := range ai {
+				diffValues(at(bj[k]), a[ai[k]], b[bj[k]], out)
 			}
 			return
 		}
-		walk(a[i0:i1], b[j0:j1], alike, func(i, j int) {
+		as, bs := pick(a, ai), pick(b, bj)
+		walk(as, bs, alike, func(i, j int) {
 			switch {
 			case i < 0:
-				diffValues(at(j0+j), nil, b[j0+j], out)
+				diffValues(at(bj[j]), nil, b[bj[j]], out)
 			case j < 0:
-				diffValues(at(i0+i), a[i0+i], nil, out)
+				diffValues(at(ai[i]), a[ai[i]], nil, out)
 			default:
-				diffValues(at(j0+j), a[i0+i], b[j0+j], out)
+				diffValues(at(bj[j]), a[ai[i]], b[bj[j]], out)
 			}
 		})
 	}
-	i0, j0 := 0, 0
-	walk(a, b, same, func(i, j int) {
-		if i >= 0 && j >= 0 {
-			gap(i0, i, j0, j)
-			i0, j0 = i+1, j+1
+	ngaps := 1
+	for _, q := range pa {
+		if q >= 0 {
+			ngaps++
 		}
-	})
-	gap(i0, len(a), j0, len(b))
+	}
+	for g := range ngaps {
+		var ai, bj []int
+		for i := range a {
+			if ga[i] == g && pa[i] < 0 {
+				ai = append(ai, i)
+			}
+		}
+		for j := range b {
+			if gb[j] == g && pb[j] < 0 {
+				bj = append(bj, j)
+			}
+		}
+		rest(ai, bj)
+		for j := range b {
+			i := pb[j]
+			if gb[j] != g || i < 0 || a[i].text == b[j].text && !moved[j] {
+				continue
+			}
+			if !moved[j] {
+				diffValues(at(j), a[i], b[j], out)
+				continue
+			}
+			c := Change{Path: at(j), From: a[i].text, To: b[j].text, Moved: at(i)}
+			if a[i].text != b[j].text {
+				diffValues("", a[i], b[j], &c.Keys)
+			}
+			*out = append(*out, c)
+		}
+	}
 }
 
-// moves joins, among the changes of the list at path, an item removed
-// and an item added with the same text into one change: the item moved
-// (Change.Moved), at the added item's place. An item the plan moved is
-// the same item, not one removed and another added (a sensitivity
-// analysis moved is not one added after freezing); the move is still a
-// change of the list, whose order is that of the rules and the report.
-func moves(cs []Change, path string) []Change {
-	item := func(c Change) bool {
-		return strings.HasPrefix(c.Path, path+"[") && !strings.ContainsAny(c.Path[len(path)+1:], ".[")
+// sameItems pairs the items of a and b not paired yet (pa, pb: the index
+// of each item's partner in the other list, or -1), as diffItems
+// describes: first items of the same text, in order, then items with the
+// same name, then items of the same kind sharing at least as many values
+// as they differ in, each the other's only best match. It records the pairs in pa
+// and pb and returns them, in the order of b.
+func sameItems(a, b []*value, pa, pb []int) [][2]int {
+	var out [][2]int
+	pair := func(i, j int) {
+		pa[i], pb[j] = j, i
+		out = append(out, [2]int{i, j})
 	}
-	gone := map[int]bool{}
-	for j, c := range cs {
-		if c.From != Absent || !item(c) {
-			continue
-		}
-		for i, r := range cs {
-			if !gone[i] && r.To == Absent && item(r) && r.From == c.To {
-				gone[i] = true
-				cs[j].From, cs[j].Moved = r.From, r.Path
-				break
+	for j := range b {
+		for i := range a {
+			if pb[j] < 0 && pa[i] < 0 && a[i].text == b[j].text {
+				pair(i, j)
 			}
 		}
 	}
-	out := cs[:0:0]
-	for i, c := range cs {
-		if !gone[i] {
-			out = append(out, c)
+	bestOfA := make([]int, len(a))
+	for i := range a {
+		bestOfA[i] = -1
+		if pa[i] < 0 {
+			bestOfA[i] = closest(len(b), func(j int) int {
+				if pb[j] >= 0 {
+					return 0
+				}
+				return sameness(a[i], b[j])
+			})
 		}
+	}
+	for j := range b {
+		if pb[j] >= 0 {
+			continue
+		}
+		i := closest(len(a), func(i int) int {
+			if pa[i] >= 0 {
+				return 0
+			}
+			return sameness(a[i], b[j])
+		})
+		if i >= 0 && bestOfA[i] == j {
+			pair(i, j)
+		}
+	}
+	slices.SortFunc(out, func(x, y [2]int) int { return x[1] - y[1] })
+	return out
+}
+
+// sameness is how close two items of a list are to being one item
+// changed: for named items (itemName) the most when the names are the
+// same, else 0; for others, of the same keys, the number of plain values
+// they share when it is at least the number they differ in, else 0.
+func sameness(x, y *value) int {
+	if !x.object || !y.object {
+		return 0
+	}
+	nx, ny := itemName(x), itemName(y)
+	switch {
+	case nx != "" || ny != "":
+		if nx == ny {
+			return math.MaxInt
+		}
+		return 0
+	case !slices.Equal(sortedKeys(x), sortedKeys(y)):
+		return 0
+	}
+	lx, ly := leaves("", x), leaves("", y)
+	equal, all := 0, len(lx)
+	for k, t := range ly {
+		if u, ok := lx[k]; !ok {
+			all++
+		} else if u == t {
+			equal++
+		}
+	}
+	if equal == 0 || 2*equal < all {
+		return 0
+	}
+	return equal
+}
+
+// closest is the index k < n of the only largest score(k) above 0, or -1
+// when none is above 0 or several share the largest.
+func closest(n int, score func(k int) int) int {
+	top, at := 0, -1
+	for k := range n {
+		switch v := score(k); {
+		case v > top:
+			top, at = v, k
+		case v == top && v > 0:
+			at = -1
+		}
+	}
+	return at
+}
+
+// itemName is the name of an item of a list: its name (a sensitivity
+// analysis, a predictor written as a mapping) or else its column (an
+// outcome); "" when it has neither.
+func itemName(v *value) string {
+	for _, k := range []string{"name", "column"} {
+		if f, ok := v.fields[k]; ok && !f.object && !f.array {
+			return k + "=" + f.text
+		}
+	}
+	return ""
+}
+
+// leaves maps the key paths of a value's plain values (a list counted as
+// one value) to their text.
+func leaves(path string, v *value) map[string]string {
+	out := map[string]string{}
+	if !v.object {
+		out[path] = v.text
+		return out
+	}
+	for _, k := range v.keys {
+		maps.Copy(out, leaves(child(path, k), v.fields[k]))
+	}
+	return out
+}
+
+// unpaired is n indices with no partner (-1).
+func unpaired(n int) []int {
+	p := make([]int, n)
+	for i := range p {
+		p[i] = -1
+	}
+	return p
+}
+
+// pick is the items of v at the indices.
+func pick(v []*value, idx []int) []*value {
+	out := make([]*value, len(idx))
+	for k, i := range idx {
+		out[k] = v[i]
 	}
 	return out
 }

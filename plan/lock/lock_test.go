@@ -4,6 +4,7 @@ import (
 	"errors"
 	"os"
 	"path/filepath"
+	"reflect"
 	"slices"
 	"strings"
 	"testing"
@@ -80,7 +81,7 @@ func TestChangedRuleWithoutReason(t *testing.T) {
 		t.Fatalf("want an UnexplainedError, got %v", err)
 	}
 	want := []Explained{{Change: Change{Path: "rules[1].reject_if_test_rejects.alpha", From: "0.05", To: "0.01"}}}
-	if len(st.Changes) != 1 || st.Changes[0] != want[0] {
+	if len(st.Changes) != 1 || !reflect.DeepEqual(st.Changes[0], want[0]) {
 		t.Fatalf("changes %+v, want %+v", st.Changes, want)
 	}
 	if !strings.Contains(err.Error(), "rules[1].reject_if_test_rejects.alpha: 0.05 -> 0.01") {
@@ -364,14 +365,106 @@ func TestRemovedAndInsertedRules(t *testing.T) {
 		{"moved", strings.Replace(basePlan, "  - reject_unconverged: true\n  - reject_if_test_rejects: {test: lr, alpha: 0.05}\n", "  - reject_if_test_rejects: {test: lr, alpha: 0.05}\n  - reject_unconverged: true\n", 1), []string{
 			`rules[1]: moved from rules[0], unchanged: {"reject_unconverged": true}`,
 		}},
-		// Moved and changed, it is another item: one removed, one added.
-		{"moved, and the other rule changed", strings.Replace(basePlan, "  - reject_unconverged: true\n  - reject_if_test_rejects: {test: lr, alpha: 0.05}\n", "  - reject_if_test_rejects: {test: lr, alpha: 0.01}\n  - reject_unconverged: true\n", 1), []string{
-			`rules[0]: (absent) -> {"reject_if_test_rejects": {"against": "least_constrained", "alpha": 0.01, "test": "lr"}}`,
-			`rules[1]: {"reject_if_test_rejects": {"against": "least_constrained", "alpha": 0.05, "test": "lr"}} -> (absent)`,
+		// Moved and changed, it is the same rule: one change saying where
+		// it was and which of its keys changed.
+		{"moved and changed", strings.Replace(basePlan, "  - reject_unconverged: true\n  - reject_if_test_rejects: {test: lr, alpha: 0.05}\n", "  - reject_if_test_rejects: {test: lr, alpha: 0.01}\n  - reject_unconverged: true\n", 1), []string{
+			`rules[0]: moved from rules[1], changed: reject_if_test_rejects.alpha 0.05 -> 0.01`,
 		}},
 	} {
 		p, _ := setup(t, tc.src)
 		st, _ := Check(p, true)
+		var got []string
+		for _, c := range st.Changes {
+			got = append(got, c.Path+": "+c.Transition())
+		}
+		slices.Sort(got)
+		slices.Sort(tc.want)
+		if strings.Join(got, "\n") != strings.Join(tc.want, "\n") {
+			t.Errorf("%s: changes\n%s\nwant\n%s", tc.name, strings.Join(got, "\n"), strings.Join(tc.want, "\n"))
+		}
+	}
+}
+
+// An item of a list that moved and changed is matched to its old self:
+// by its name when it has one (a sensitivity analysis), otherwise by its
+// kind and the values it kept, when they are at least as many as those
+// that changed and no other item is as close. Two similar rules swapped
+// and each changed are two moves; a rule removed and another of its kind
+// added elsewhere, or a rule as close to two others, are not matched.
+func TestMovedAndChangedItems(t *testing.T) {
+	const frozen = `version: 1
+data:
+  file: d.csv
+  missing_values: ["", "NA"]
+outcomes:
+  - column: y
+    categories: [low, mid, high]
+predictors: [a, b]
+models:
+  approaches: [cumulative]
+  effects: [parallel, nonparallel]
+tests: {parallel_lines: [lr, wald]}
+rules:
+  - reject_unconverged: true
+  - reject_if_test_rejects: {test: lr, alpha: 0.05, against: least_constrained}
+  - reject_if_test_rejects: {test: wald, alpha: 0.05, against: next_less_constrained}
+  - reject_if_sparse: {per_parameter: 10, smallest_category: 5}
+  - choose: {by: aic}
+sensitivity:
+  - {name: s1, why: one, change: {covariance: sandwich}}
+  - {name: s2, why: two, change: {covariance: expected}}
+`
+	rules := func(list string) string {
+		i, j := strings.Index(frozen, "rules:\n"), strings.Index(frozen, "sensitivity:\n")
+		return frozen[:i] + "rules:\n" + list + frozen[j:]
+	}
+	const (
+		unconv = "  - reject_unconverged: true\n"
+		lr     = "  - reject_if_test_rejects: {test: lr, alpha: 0.05, against: least_constrained}\n"
+		wald   = "  - reject_if_test_rejects: {test: wald, alpha: 0.05, against: next_less_constrained}\n"
+		sparse = "  - reject_if_sparse: {per_parameter: 10, smallest_category: 5}\n"
+		choose = "  - choose: {by: aic}\n"
+	)
+	for _, tc := range []struct {
+		name, src string
+		want      []string
+	}{
+		{"moved past two and changed", rules(unconv + strings.Replace(sparse, "10", "8", 1) + lr + wald + choose), []string{
+			`rules[1]: moved from rules[3], changed: reject_if_sparse.per_parameter 10 -> 8`,
+		}},
+		{"two similar rules swapped, each changed", rules(unconv + strings.Replace(wald, "0.05", "0.01", 1) + strings.Replace(lr, "0.05", "0.01", 1) + sparse + choose), []string{
+			`rules[1]: moved from rules[2], changed: reject_if_test_rejects.alpha 0.05 -> 0.01`,
+			`rules[2]: moved from rules[1], changed: reject_if_test_rejects.alpha 0.05 -> 0.01`,
+		}},
+		{"two similar rules swapped, one changed", rules(unconv + wald + strings.Replace(lr, "0.05", "0.01", 1) + sparse + choose), []string{
+			`rules[2]: moved from rules[1], changed: reject_if_test_rejects.alpha 0.05 -> 0.01`,
+		}},
+		{"a rule removed and another of its kind added elsewhere", rules(unconv + wald + sparse + "  - reject_if_test_rejects: {test: score, alpha: 0.01, against: least_constrained}\n" + choose), []string{
+			`rules[1]: {"reject_if_test_rejects": {"against": "least_constrained", "alpha": 0.05, "test": "lr"}} -> (absent)`,
+			`rules[3]: (absent) -> {"reject_if_test_rejects": {"against": "least_constrained", "alpha": 0.01, "test": "score"}}`,
+		}},
+		{"a rule removed and one of another kind added elsewhere", rules(unconv + wald + sparse + "  - reject_negative_probabilities: true\n" + choose), []string{
+			`rules[1]: {"reject_if_test_rejects": {"against": "least_constrained", "alpha": 0.05, "test": "lr"}} -> (absent)`,
+			`rules[3]: (absent) -> {"reject_negative_probabilities": true}`,
+		}},
+		{"as close to two rules", rules(unconv + sparse + "  - reject_if_test_rejects: {test: lr, alpha: 0.05, against: next_less_constrained}\n" + choose), []string{
+			`rules[1]: {"reject_if_test_rejects": {"against": "least_constrained", "alpha": 0.05, "test": "lr"}} -> (absent)`,
+			`rules[2]: (absent) -> {"reject_if_test_rejects": {"against": "next_less_constrained", "alpha": 0.05, "test": "lr"}}`,
+			`rules[2]: {"reject_if_test_rejects": {"against": "next_less_constrained", "alpha": 0.05, "test": "wald"}} -> (absent)`,
+		}},
+		{"a named item moved and changed", strings.Replace(frozen, "  - {name: s1, why: one, change: {covariance: sandwich}}\n  - {name: s2, why: two, change: {covariance: expected}}\n", "  - {name: s2, why: two, change: {covariance: expected}}\n  - {name: s1, why: first, change: {covariance: sandwich_plain}}\n", 1), []string{
+			`sensitivity[1]: moved from sensitivity[0], changed: why "one" -> "first"; change.covariance "sandwich" -> "sandwich_plain"`,
+		}},
+		{"a named item renamed and moved", strings.Replace(frozen, "  - {name: s1, why: one, change: {covariance: sandwich}}\n  - {name: s2, why: two, change: {covariance: expected}}\n", "  - {name: s2, why: two, change: {covariance: expected}}\n  - {name: s3, why: one, change: {covariance: sandwich}}\n", 1), []string{
+			`sensitivity[0]: {"name": "s1", "why": "one", "change": {"covariance": "sandwich"}} -> (absent)`,
+			`sensitivity[1]: (absent) -> {"name": "s3", "why": "one", "change": {"covariance": "sandwich"}}`,
+		}},
+	} {
+		p, _ := setupFrom(t, frozen, tc.src)
+		st, err := Check(p, true)
+		if err != nil {
+			t.Fatalf("%s: %v", tc.name, err)
+		}
 		var got []string
 		for _, c := range st.Changes {
 			got = append(got, c.Path+": "+c.Transition())
@@ -548,5 +641,28 @@ func TestLockSavedWithBOMAndCRLF(t *testing.T) {
 	os.WriteFile(lp, []byte(strings.Replace(saved, "REG-7", "REG-8", 1)), 0o644)
 	if _, err := Check(p, false); err == nil || !strings.Contains(err.Error(), "edited by hand") {
 		t.Errorf("an edited lock with a BOM: %v", err)
+	}
+}
+
+// A rule moved and changed takes a reason stated for it under either of
+// its keys, or one for each key that changed in it (at its place now or
+// then); with a key of it left without one, it has no reason.
+func TestMovedAndChangedRuleReasons(t *testing.T) {
+	frozen := strings.Replace(basePlan, "{test: lr, alpha: 0.05}", "{test: lr, alpha: 0.05, applies_to: [parallel]}", 1)
+	moved := strings.Replace(frozen, "  - reject_unconverged: true\n  - reject_if_test_rejects: {test: lr, alpha: 0.05, applies_to: [parallel]}\n", "  - reject_if_test_rejects: {test: lr, alpha: 0.01, against: next_less_constrained, applies_to: [parallel]}\n  - reject_unconverged: true\n", 1)
+	for _, tc := range []struct{ name, devs, want string }{
+		{"the item now", "  - {key: \"rules[0]\", reason: R}\n", "R"},
+		{"the item then", "  - {key: \"rules[1]\", reason: R}\n", "R"},
+		{"each key", "  - {key: \"rules[0].reject_if_test_rejects.alpha\", reason: A}\n  - {key: \"rules[1].reject_if_test_rejects.against\", reason: B}\n", "B; A"},
+		{"one key of two", "  - {key: \"rules[0].reject_if_test_rejects.alpha\", reason: A}\n", ""},
+	} {
+		p, _ := setupFrom(t, frozen, moved+"deviations:\n"+tc.devs)
+		st, _ := Check(p, true)
+		if len(st.Changes) != 1 || st.Changes[0].Moved != "rules[1]" || len(st.Changes[0].Keys) != 2 || st.Changes[0].Reason != tc.want {
+			t.Errorf("%s: %+v", tc.name, st.Changes)
+		}
+		if tc.want != "" && len(st.Unused) != 0 {
+			t.Errorf("%s: unused %+v", tc.name, st.Unused)
+		}
 	}
 }

@@ -63,6 +63,19 @@ func TestSensitivityChangesAreDeviations(t *testing.T) {
 			t.Errorf("moved analysis %d: changes %+v", i, got)
 		}
 	}
+	// Moved and changed, it is the same analysis changed since the plan
+	// was frozen (not one added): its changes are those of its keys.
+	p, _ = setupFrom(t, withSensitivity, strings.Replace(swapped, "covariance: sandwich\n", "covariance: sandwich_plain\n", 1))
+	st, _ = Check(p, true)
+	if len(st.Changes) != 1 || st.Changes[0].Moved != "sensitivity[0]" || len(st.Changes[0].Keys) != 1 || st.Changes[0].Keys[0].Path != "change.covariance" {
+		t.Fatalf("moved and changed: %+v", st.Changes)
+	}
+	if got := st.SensitivityChanges(1); len(got) != 1 || SensitivityAdded(got) {
+		t.Errorf("moved and changed analysis: changes %+v", got)
+	}
+	if got := st.SensitivityChanges(0); len(got) != 0 {
+		t.Errorf("the analysis that kept its place: changes %+v", got)
+	}
 	// Its why is part of it.
 	p, _ = setupFrom(t, withSensitivity, strings.Replace(withSensitivity, "otherwise.", "otherwise", 1))
 	st, _ = Check(p, true)

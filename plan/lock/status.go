@@ -113,6 +113,11 @@ func Compare(p *plan.Plan, f *File) (*Status, error) {
 			// An item moved: its key in the frozen plan names it too.
 			best = stated(p.Deviations, c.Moved)
 		}
+		if best < 0 && len(c.Keys) > 0 {
+			// An item moved and changed: a reason for each key that
+			// changed in it, at its place now or then, explains it.
+			e.Reason = movedReasons(p.Deviations, c, used)
+		}
 		if src, ok := p.Derived[c.Path]; ok && best < 0 && changedAt(changes, src) {
 			// A key the plan does not write, changed with the key it
 			// follows: that key's change, with its reason.
@@ -135,6 +140,33 @@ func Compare(p *plan.Plan, f *File) (*Status, error) {
 		st.State = StateUnexplained
 	}
 	return st, nil
+}
+
+// movedReasons is the reason of an item that moved and changed (c.Keys)
+// when the deviations state one for each key that changed in it, under
+// the item's key now or in the frozen plan (rules[3].reject_if_sparse.
+// per_parameter), their distinct reasons joined and marked used; "" when
+// a key has none.
+func movedReasons(devs []plan.Deviation, c Change, used []bool) string {
+	var idx []int
+	for _, k := range c.Keys {
+		i := stated(devs, c.Path+"."+k.Path)
+		if i < 0 {
+			i = stated(devs, c.Moved+"."+k.Path)
+		}
+		if i < 0 {
+			return ""
+		}
+		if !slices.Contains(idx, i) {
+			idx = append(idx, i)
+		}
+	}
+	reasons := make([]string, len(idx))
+	for n, i := range idx {
+		used[i] = true
+		reasons[n] = devs[i].Reason
+	}
+	return strings.Join(reasons, "; ")
 }
 
 // stated is the index of the most specific deviation covering the key
@@ -253,7 +285,8 @@ func (e *UnexplainedError) Error() string {
 // SensitivityChanges lists the changes from the lock that touch the
 // plan's sensitivity analysis at index i: the analysis added since the
 // plan was frozen (the whole list, or its item, new), or a key of it
-// changed. An analysis removed since is named by its index in the frozen
+// changed (in its place, or moved there and changed; moved unchanged, it
+// is the analysis registered). An analysis removed since is named by its index in the frozen
 // list, not the plan's, and is left out. None without a lock.
 func (s *Status) SensitivityChanges(i int) []Explained {
 	if s == nil || s.Lock == nil {
@@ -264,7 +297,7 @@ func (s *Status) SensitivityChanges(i int) []Explained {
 	for _, c := range s.Changes {
 		switch {
 		case c.Path == "sensitivity" && c.To != Absent,
-			c.Path == item && c.To != Absent && c.Moved == "",
+			c.Path == item && c.To != Absent && (c.Moved == "" || len(c.Keys) > 0),
 			strings.HasPrefix(c.Path, item+"."):
 			out = append(out, c)
 		}
