@@ -13,8 +13,10 @@ import (
 // remembering the node behind every key path so later checks can point
 // at the right line.
 type decoder struct {
-	file  string
-	errs  Errors
+	file string
+	errs Errors
+	// warns are the warnings of a plan that is read (warnAt)
+	warns []*Error
 	nodes map[string]*yaml.Node
 	// badTerms are the names of predictor terms reported as bad, so that
 	// later checks do not report them again as unknown
@@ -40,6 +42,17 @@ func (d *decoder) errorf(n *yaml.Node, key, format string, args ...any) {
 		e.Line, e.Col = n.Line, n.Column
 	}
 	d.errs = append(d.errs, e)
+}
+
+// warnAt records a warning under key, placed as errAt places a problem:
+// the plan is read, and check and run print it (Plan.Warnings).
+func (d *decoder) warnAt(key, format string, args ...any) {
+	n := d.near(key)
+	e := &Error{File: d.file, Key: key, Msg: fmt.Sprintf(format, args...)}
+	if n != nil {
+		e.Line, e.Col = n.Line, n.Column
+	}
+	d.warns = append(d.warns, e)
 }
 
 // errAt records a problem under key, placed at the node recorded for key or

@@ -132,6 +132,8 @@ func parse(src []byte, path string, withData bool, rows *Rows) (*Plan, error) {
 		return nil, d.errs
 	}
 	p.Unedited = d.unedited(src, root)
+	sortErrors(d.warns)
+	p.Warnings = d.warns
 	return p, nil
 }
 

@@ -49,6 +49,10 @@ type Plan struct {
 	// guesses to confirm, placeholders to replace. Not in the canonical
 	// form; freeze refuses a plan that has any, check and run warn.
 	Unedited []*Error
+	// Warnings are the keys the plan sets that do little or nothing for
+	// its files (data.delimiter for a workbook: checkDialectKeys), which
+	// check and run print; not in the canonical form.
+	Warnings []*Error
 	// Derived are the keys of the canonical form that the plan does not
 	// write, whose value is taken from a key it does (report.title from
 	// title): key -> the key it follows. A change of one that comes with

@@ -2078,6 +2078,32 @@ func catalogue(dir string) (items []badInput) {
 		{id: "D57", name: "a workbook's numbers under a decimal comma match levels written with a comma", args: []string{"check"},
 			plan: edit("file: d.csv", "file: levels.xlsx\n  decimal: comma", "predictors: [a, b]", "predictors: [x]\ncategorical:\n  x: {levels: [\"2,5\", \"3\", \"4,25\"]}"), code: 0,
 			want: []string{`plan is valid`}},
+		{id: "W39", name: "data.delimiter for a workbook", args: []string{"check"}, code: 0,
+			plan: edit("file: d.csv", "file: levels.xlsx\n  delimiter: semicolon", "predictors: [a, b]", "predictors: [x]"), want: []string{"plan is valid"},
+			check: func(t *testing.T, dir, out, errs string) {
+				if want := `W39.yaml:4:14: data.delimiter: applies to CSV files only, and no file of this plan is one (the data file "levels.xlsx" is a workbook, which has no delimiter): remove the key`; !strings.Contains(errs, "warning: "+filepath.Join(dir, want)) {
+					t.Errorf("want %q in\n%s", want, errs)
+				}
+			}},
+		{id: "W39", name: "data.delimiter for a workbook with new rows in CSV", args: []string{"check"}, code: 0,
+			plan: edit("file: d.csv", "file: levels.xlsx\n  delimiter: semicolon", "predictors: [a, b]", "predictors: [x]\ninference: {predict: W39.csv}"), want: []string{"plan is valid"},
+			setup: func(t *testing.T, dir, id string) {
+				if err := os.WriteFile(filepath.Join(dir, id+".csv"), []byte("x\n2.5\n"), 0o644); err != nil {
+					t.Fatal(err)
+				}
+			},
+			check: func(t *testing.T, dir, out, errs string) {
+				if want := `data.delimiter: applies to CSV files only: it sets how the new rows of inference.predict ("W39.csv") are read, and nothing in the data file "levels.xlsx", a workbook, which has no delimiter`; !strings.Contains(errs, want) {
+					t.Errorf("want %q in\n%s", want, errs)
+				}
+			}},
+		{id: "W39", name: "data.decimal: comma for a workbook, no level written with a comma", args: []string{"check"}, code: 0,
+			plan: edit("file: d.csv", "file: levels.xlsx\n  decimal: comma", "predictors: [a, b]", "predictors: [x]"), want: []string{"plan is valid"},
+			check: func(t *testing.T, dir, out, errs string) {
+				if want := `data.decimal: the data file "levels.xlsx" is a workbook, whose number cells are numbers whatever the decimal mark: under decimal: comma its cells of text are read with a decimal comma ("2,5"), and its numbers are written with one where they are compared with declared levels (levels: ["2,5"] for the number 2.5); remove the key if the file holds its numbers as numbers and no level is written with a comma`; !strings.Contains(errs, want) {
+					t.Errorf("want %q in\n%s", want, errs)
+				}
+			}},
 		{id: "X17", name: "a spreadsheet error value in a used column", args: fitArgs(d("formula.xlsx"), "--predictors", "b"), code: 1,
 			want: []string{`formula.xlsx:4: column "b": value "#DIV/0!" is not a number; it is a spreadsheet's error value: correct the formula that gave it, or list "#DIV/0!" among the missing-value markers (data.missing_values)`}},
 		{id: "X18", name: "a workbook's dates used as a number", args: fitArgs(d("shown.xlsx"), "--predictors", "a,day"), code: 1,

@@ -301,7 +301,8 @@ func warnUnedited(p *plan.Plan, stderr io.Writer) {
 	}
 }
 
-// warnPlan prints, on stderr, each rule or stepwise selection of p that
+// warnPlan prints, on stderr, the plan's warnings of keys that do little
+// or nothing for its files (plan.Plan.Warnings), each rule or stepwise selection of p that
 // reads a statistic ignoring the clusters of clustered errors
 // (runner.ClusterWarnings), each two-category outcome whose grid and
 // tests are made for several boundaries (runner.BinaryWarnings) and each
@@ -311,6 +312,9 @@ func warnUnedited(p *plan.Plan, stderr io.Writer) {
 // condition chooses by the outcome's own value
 // (runner.OutcomeSubsetWarnings); the command goes on.
 func warnPlan(p *plan.Plan, stderr io.Writer) {
+	for _, e := range p.Warnings {
+		fmt.Fprintf(stderr, "warning: %v\n", e)
+	}
 	for _, w := range runner.ClusterWarnings(p) {
 		fmt.Fprintf(stderr, "warning: %s: %s\n", p.Path, w)
 	}
