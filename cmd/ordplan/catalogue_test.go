@@ -3347,6 +3347,8 @@ var testedElsewhere = map[string]struct{ file, name string }{
 	"Q21": {"../../runner/queue/othersecret_test.go", "TestCoordinatorSaysWhatItWaitsFor"},
 	"Q23": {"../../runner/queue/worded_test.go", "TestCacheFailureWorded"},
 	"Q24": {"../../runner/queue/worded_test.go", "TestAckWaitOfRunningWorkersKept"},
+	"Q27": {"../../runner/queue/notes_test.go", "TestCoordinatorSaysWhenAWorkerFallsSilent"},
+	"Q28": {"../../runner/queue/othersecret_test.go", "TestOnlyRefusingWorkersEndTheRun"},
 }
 
 // Every item of the catalogue is in docs/bad-inputs.md, and every item

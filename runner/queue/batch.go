@@ -41,6 +41,7 @@ type batch struct {
 	done    int
 	st      BatchStats
 	hooks   batchHooks
+	notes   *batchNotes // the workers' notes on the batch's jobs
 }
 
 // runBatch makes sure every task of the batch has a valid reply and
@@ -79,6 +80,17 @@ func (c *Client) runBatch(ctx context.Context, id string, tasks []*Task, h batch
 		return nil, b.st, fmt.Errorf("results bucket: %v", err)
 	}
 	defer w.Stop()
+	// The workers' notes, heard from before the jobs are published: a
+	// worker that stops sending progress is said, and a run whose jobs
+	// only workers with another secret take ends (its cause ends ctx).
+	ctx, stopWaiting := context.WithCancelCause(ctx)
+	defer stopWaiting(nil)
+	b.ctx = ctx
+	b.notes, err = c.follow(ctx, id, tasks, stopWaiting)
+	if err != nil {
+		return nil, b.st, err
+	}
+	defer b.notes.stop()
 	// Replies stored before this call: a restarted coordinator reuses them
 	// (but for errors, computed again).
 	for {
@@ -229,6 +241,9 @@ func (b *batch) take(e jetstream.KeyValueEntry, republish bool) (bool, error) {
 	if err == nil {
 		b.replies[i], b.revs[i] = r, e.Revision()
 		b.done++
+		if b.notes != nil {
+			b.notes.answered(i)
+		}
 		if b.hooks.finished != nil {
 			b.hooks.finished(i)
 		}

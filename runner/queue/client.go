@@ -33,6 +33,10 @@ type Client struct {
 	// consumer shows (default DefaultWaitNotice; each later notice waits
 	// twice as long).
 	WaitNotice time.Duration
+	// RefusedWait is how long a coordinator whose jobs workers with
+	// another secret refuse waits for word from a worker holding its own
+	// secret before it stops the run (default DefaultRefusedWait).
+	RefusedWait time.Duration
 	// Log, when set, hears of discarded replies and republished jobs.
 	Log io.Writer
 }

@@ -65,10 +65,14 @@
 // job carry their own HMAC of the counts, the subject and the job
 // (giveBackSeal), so a process without the secret cannot change how many
 // deliveries of a job count. Workers drop jobs without the seal or whose
-// give-back headers do not match their seal, leave on the queue until its
-// last delivery a job whose seal does not match their secret (the
-// worker's secret may be the wrong one: Worker.refuse), and refuse jobs
-// beyond their Limits; the coordinator discards, logs
+// give-back headers do not match their seal, put back on the queue a job
+// whose seal does not match their secret without spending its deliveries
+// (the worker's secret may be the wrong one: Worker.refuse), and refuse
+// jobs beyond their Limits. Workers send the coordinator notes on the jobs
+// they hold (notes.go: progress, end, refusal) on
+// ordplan.notes.<batch>.<index>: it says which worker fell silent on a job
+// and who refused one, and stops a run whose jobs only refusing workers
+// take. The coordinator discards, logs
 // and publishes again the job of a reply that does not open or does not
 // have the shape of an answer (validate.go), says what it waits for after
 // WaitNotice without a reply (Client.workersNow: the workers' consumer),

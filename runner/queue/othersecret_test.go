@@ -11,28 +11,45 @@ import (
 	"ordplan/runner/fit"
 )
 
-// A worker started with another secret than the coordinator's (or by
-// another version of ordplan) refuses the jobs, saying what to do, but
-// leaves them on the queue: a worker holding the right secret computes
-// them and the run ends. The worker with the wrong secret used to remove
-// every job it refused, and the run waited for --job-deadline (30 min)
-// without a word.
-func TestWorkerWithAnotherSecretLeavesJobs(t *testing.T) {
-	q := newTestQueue(t, 60*time.Second, fit.ParallelEffects, fit.NonparallelEffects)
-	wctx, cancel := context.WithCancel(context.Background())
-	defer cancel()
-	other, err := Connect(wctx, Config{URL: q.url, Name: "wrong", Secret: []byte("another secret of more than sixteen bytes")})
+// otherSecretWorker runs a worker holding another secret than the
+// coordinator's until the test ends; its log is returned.
+func otherSecretWorker(t *testing.T, url, name string) *LogBuffer {
+	t.Helper()
+	ctx, cancel := context.WithCancel(context.Background())
+	other, err := Connect(ctx, Config{URL: url, Name: name, Secret: []byte("another secret of more than sixteen bytes")})
 	if err != nil {
 		t.Fatal(err)
 	}
-	defer other.Close()
-	wrongLog := &LogBuffer{}
-	wrong := &Worker{Client: other, Name: "wrong", CacheDir: t.TempDir(), AckWait: 5 * time.Second, Log: wrongLog}
+	log := &LogBuffer{}
+	w := &Worker{Client: other, Name: name, CacheDir: t.TempDir(), AckWait: 5 * time.Second, Log: log, refusedPause: 100 * time.Millisecond}
 	done := make(chan error, 1)
-	go func() { done <- wrong.Run(wctx) }()
-	waitFor(t, 10*time.Second, "the worker with another secret ready", func() bool { return strings.Contains(wrongLog.String(), "ready") })
+	go func() { done <- w.Run(ctx) }()
+	t.Cleanup(func() {
+		cancel()
+		if err := <-done; err != nil {
+			t.Error(err)
+		}
+		other.Close()
+	})
+	waitFor(t, 10*time.Second, name+" ready", func() bool { return strings.Contains(log.String(), "ready") })
+	return log
+}
 
-	co := q.coordinator(t, nil)
+// A worker started with another secret than the coordinator's (or by
+// another version of ordplan) refuses the jobs, saying what to do, and
+// puts them back on the queue without spending their deliveries: refused
+// ten times, a job is still computed by a worker holding the right secret
+// at its first counted delivery, and the coordinator says at once who
+// refused it. The worker with the wrong secret used to remove every job it
+// refused, and later to leave it unacknowledged, which spent the job's
+// deliveries: a job it refused three times was answered "no worker
+// finished it" by the right worker (a fault stopping the run), and one it
+// refused five times was removed, the run waiting for --job-deadline.
+func TestWorkerWithAnotherSecretLeavesJobs(t *testing.T) {
+	q := newTestQueue(t, 60*time.Second, fit.ParallelEffects, fit.NonparallelEffects)
+	wrongLog := otherSecretWorker(t, q.url, "wrong")
+	clog := &LogBuffer{}
+	co := q.coordinator(t, clog)
 	type outcome struct {
 		res  []*fit.Result
 		errs []error
@@ -42,21 +59,55 @@ func TestWorkerWithAnotherSecretLeavesJobs(t *testing.T) {
 		res, errs := co.Execute(q.jobs)
 		got <- outcome{res, errs}
 	}()
-	waitFor(t, 10*time.Second, "a job refused", func() bool { return strings.Contains(wrongLog.String(), "job refused") })
-	startWorker(t, q.url, "right", 5*time.Second, 0)
+	waitFor(t, 20*time.Second, "ten refusals", func() bool { return wrongLog.Count("job refused") >= 10 })
+	right := startWorker(t, q.url, "right", 5*time.Second, 0)
 	o := <-got
 	for i, err := range o.errs {
 		if err != nil || o.res[i] == nil {
 			t.Fatalf("job %d: %v", i, err)
 		}
 	}
-	want := "job refused: not authenticated: no valid HMAC with the shared secret (a process without the secret wrote it, or the coordinator and the worker use different secrets); left on the queue for a worker holding the coordinator's secret (delivery 1 of at most 5, removed at the last): if this worker refuses every job, give it the coordinator's secret file (--queue-secret-file) and the coordinator's version of ordplan"
+	want := "job refused: not authenticated: no valid HMAC with the shared secret (a process without the secret wrote it, or the coordinator and the worker use different secrets); put back on the queue for a worker holding the coordinator's secret (not counted against its delivery limit, refusal 1): if this worker refuses every job, give it the coordinator's secret file (--queue-secret-file) and the coordinator's version of ordplan"
 	if !strings.Contains(wrongLog.String(), want) {
 		t.Errorf("the worker with another secret logged\n%s\nwant a line with\n%s", wrongLog, want)
 	}
-	cancel()
-	if err := <-done; err != nil {
-		t.Error(err)
+	if n := right.Count("(delivery 1)"); n != 2 || strings.Contains(right.String(), "(delivery 2") {
+		t.Errorf("the right worker's deliveries were spent by refusals:\n%s", right)
+	}
+	said := "queue: worker wrong refused job cumulative/"
+	if n := clog.Count(said); n != 1 || !strings.Contains(clog.String(), ": its secret differs from this coordinator's, or it runs another version of ordplan; the job stays on the queue for a worker with this coordinator's secret: give worker wrong the coordinator's secret file (--queue-secret-file) and this version of ordplan, or stop it") {
+		t.Errorf("the coordinator said %d times who refused the jobs, want once:\n%s", n, clog)
+	}
+}
+
+// A run whose jobs only workers with another secret take ends, after
+// RefusedWait without word from a worker holding its secret, with a
+// message naming them and what to do, and its jobs leave the queue: they
+// used to circle (or be removed) while the run waited for --job-deadline
+// (30 min), then for as long again.
+func TestOnlyRefusingWorkersEndTheRun(t *testing.T) {
+	q := newTestQueue(t, 60*time.Second, fit.ParallelEffects)
+	otherSecretWorker(t, q.url, "wrong")
+	q.c.RefusedWait = time.Second
+	clog := &LogBuffer{}
+	co := q.coordinator(t, clog)
+	_, errs := co.Execute(q.jobs)
+	want := "only workers that refuse this run's jobs took them for 1s: wrong ("
+	if errs[0] == nil || !strings.Contains(errs[0].Error(), want) ||
+		!strings.Contains(errs[0].Error(), "refusals), whose secret differs from this coordinator's (or which run another version of ordplan), and no worker with this coordinator's secret was heard from: give those workers the coordinator's secret file (--queue-secret-file) and version, or start one that has them, then run again (the results already made are reused); its jobs were removed from the queue") {
+		t.Fatalf("got %v, want %q", errs[0], want)
+	}
+	if co.Err() == nil {
+		t.Error("the coordinator's Err is not set")
+	}
+	info, err := q.c.jobs.Info(q.ctx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// A refusal may have put the job back while the run ended: at most
+	// that one, which the next refusal's worker removes, or a rerun takes.
+	if info.State.Msgs > 1 {
+		t.Errorf("%d jobs left on the queue", info.State.Msgs)
 	}
 }
 

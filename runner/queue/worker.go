@@ -44,6 +44,8 @@ type Worker struct {
 	Abort context.Context
 
 	abandoned atomic.Int64 // jobs given back because of Abort
+	// refusedPause, when set, replaces refusedPause (tests).
+	refusedPause time.Duration
 
 	cache    *dataCache
 	parts    *partitionCache
@@ -179,34 +181,97 @@ func (w *Worker) loop(ctx context.Context, cons jetstream.Consumer) {
 }
 
 // refusedRetryDelay is how long a job whose seal does not match this
-// worker's secret waits before it is delivered again; refusedPause is how
-// long the worker's fetch that refused it then waits, so that workers
-// holding the coordinator's secret take the queued jobs meanwhile.
+// worker's secret, delivered before, waits before it is delivered again;
+// refusedPause is how long the worker's fetch that refused a job then
+// waits, so that workers holding the coordinator's secret take the queued
+// jobs meanwhile.
 const (
 	refusedRetryDelay = 2 * time.Second
 	refusedPause      = 3 * time.Second
 )
 
+const (
+	// headerRefusals counts the refusals of a job by workers with
+	// another secret (refuse). Not sealed: those workers cannot seal for
+	// the coordinator's secret, and workers holding it ignore it.
+	headerRefusals = "Ordplan-Refusals"
+)
+
 // refuse answers a job that does not open (err). A message in ordplan's
 // sealed form whose seal does not match may come from a coordinator whose
 // secret differs from this worker's (or another version of ordplan): the
-// fault may be this worker's, so the job is left on the queue for another
-// worker until its last delivery, and removed then. Anything else (no seal,
-// give-back headers that do not match theirs) is removed at once.
+// fault may be this worker's, so the job is put back on the queue for
+// another worker without spending the deliveries the job may count
+// (published anew at the end of the queue as it is, headers and all, with
+// its refusals counted in headerRefusals, and this message acknowledged),
+// and the coordinator is told (a refusal note: it says so, and stops a
+// run whose jobs only such workers take). A job delivered before (a
+// worker with the secret failed on it, or died) is left unacknowledged
+// instead, as publishing it anew would forget those deliveries; that
+// delivery counts, and it is removed at its last. A job refused
+// MaxRefusals times is removed. Anything else (no seal, give-back headers
+// that do not match theirs) is removed at once.
 func (w *Worker) refuse(ctx context.Context, msg jetstream.Msg, err error) {
 	delivered := uint64(MaxDeliver)
 	if md, merr := msg.Metadata(); merr == nil {
 		delivered = md.NumDelivered
 	}
-	if errors.Is(err, errSealMismatch) && delivered < MaxDeliver {
-		w.logf("%s: job refused: %v; left on the queue for a worker holding the coordinator's secret (delivery %d of at most %d, removed at the last): if this worker refuses every job, give it the coordinator's secret file (--queue-secret-file) and the coordinator's version of ordplan",
-			msg.Subject(), err, delivered, MaxDeliver)
-		msg.NakWithDelay(refusedRetryDelay)
-		sleep(ctx, refusedPause)
+	if !errors.Is(err, errSealMismatch) {
+		w.logf("%s: job refused: %v", msg.Subject(), err)
+		msg.TermWithReason("job refused: " + err.Error())
 		return
 	}
-	w.logf("%s: job refused: %v", msg.Subject(), err)
-	msg.TermWithReason("job refused: " + err.Error())
+	refusals := 0
+	if h := msg.Headers(); h != nil {
+		refusals, _ = strconv.Atoi(h.Get(headerRefusals))
+	}
+	refusals = max(refusals, 0) + 1
+	w.sendNote(msg.Subject(), note{Kind: noteRefused, Delivery: delivered})
+	const what = "if this worker refuses every job, give it the coordinator's secret file (--queue-secret-file) and the coordinator's version of ordplan"
+	switch {
+	case refusals >= MaxRefusals || delivered >= MaxDeliver:
+		w.logf("%s: job refused: %v; removed from the queue, refused %s by workers with another secret than its coordinator's, delivered %d times: %s",
+			msg.Subject(), err, words.Count(refusals, "time", "times"), delivered, what)
+		msg.TermWithReason("job refused: " + err.Error())
+		return
+	case delivered == 1:
+		how, aerr := w.putBack(msg, refusals)
+		if aerr == nil {
+			w.logf("%s: job refused: %v; put back on the queue for a worker holding the coordinator's secret (%s, refusal %d): %s",
+				msg.Subject(), err, how, refusals, what)
+			break
+		}
+		fallthrough
+	default:
+		w.logf("%s: job refused: %v; left on the queue for a worker holding the coordinator's secret (delivery %d of at most %d, removed at the last): %s",
+			msg.Subject(), err, delivered, MaxDeliver, what)
+		msg.NakWithDelay(refusedRetryDelay)
+	}
+	pause := refusedPause
+	if w.refusedPause > 0 {
+		pause = w.refusedPause
+	}
+	sleep(ctx, pause)
+}
+
+// putBack publishes a refused job anew, as it is with its refusals
+// counted, at the end of the queue, and acknowledges the delivered
+// message: the refusal does not count against the job's deliveries.
+func (w *Worker) putBack(msg jetstream.Msg, refusals int) (string, error) {
+	ctx, cancel := context.WithTimeout(context.Background(), 10*time.Second)
+	defer cancel()
+	again := &nats.Msg{Subject: msg.Subject(), Data: msg.Data(), Header: nats.Header{}}
+	for k, v := range msg.Headers() {
+		again.Header[k] = append([]string(nil), v...)
+	}
+	again.Header.Set(headerRefusals, strconv.Itoa(refusals))
+	if _, err := w.Client.js.PublishMsg(ctx, again); err != nil {
+		return "", err
+	}
+	if err := msg.Ack(); err != nil {
+		return fmt.Sprintf("not counted against its delivery limit; acknowledging the delivered message failed (%v), so it may be computed twice, its first reply kept", err), nil
+	}
+	return "not counted against its delivery limit", nil
 }
 
 // faultRetryDelay is how long a job whose computation failed through a
@@ -241,7 +306,7 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 	}
 	w.logf("started %s %s (delivery %d%s)", msg.Subject(), t.jobName(), delivered, back)
 	start := time.Now()
-	stop := w.keepAlive(msg)
+	stop := w.keepAlive(msg, delivered)
 	abort := w.abortContext()
 	giveBack := func() {
 		stop()
@@ -436,14 +501,19 @@ func (w *Worker) sealReply(ctx context.Context, key string, r *Reply) ([]byte, e
 	return seal(w.Client.secret, sealRef, key, ref), nil
 }
 
-// keepAlive sends in-progress acknowledgements until the returned function
-// is called, so a long job keeps its place.
-func (w *Worker) keepAlive(msg jetstream.Msg) func() {
+// keepAlive sends in-progress acknowledgements, so a long job keeps its
+// place, and progress notes to the coordinator (sendNote: at once, then
+// at each tick), until the returned function is called, which sends the
+// end note. delivered is the job's delivery count (deliveries).
+func (w *Worker) keepAlive(msg jetstream.Msg, delivered uint64) func() {
+	every := min(w.interval, maxNoteEvery)
+	progress := note{Kind: noteProgress, Delivery: delivered, EveryMS: every.Milliseconds(), AckMS: w.AckWait.Milliseconds()}
+	w.sendNote(msg.Subject(), progress)
 	done := make(chan struct{})
 	stopped := make(chan struct{})
 	go func() {
 		defer close(stopped)
-		t := time.NewTicker(w.interval)
+		t := time.NewTicker(every)
 		defer t.Stop()
 		for {
 			select {
@@ -451,6 +521,7 @@ func (w *Worker) keepAlive(msg jetstream.Msg) func() {
 				return
 			case <-t.C:
 				msg.InProgress()
+				w.sendNote(msg.Subject(), progress)
 			}
 		}
 	}()
@@ -459,6 +530,7 @@ func (w *Worker) keepAlive(msg jetstream.Msg) func() {
 		once.Do(func() {
 			close(done)
 			<-stopped
+			w.sendNote(msg.Subject(), note{Kind: noteEnd, Delivery: delivered})
 		})
 	}
 }
