@@ -387,7 +387,7 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		"cr.csv": []byte(strings.ReplaceAll(csv, "\n", "\r")), "two.csv": []byte(two.String()),
 		"bad.xlsx": append([]byte("PK\x03\x04"), bytes.Repeat([]byte{7}, 200)...), "notzip.xlsx": []byte(csv),
 		"bad.parquet": []byte("PAR1garbagegarbagePAR1"), "notpq.parquet": []byte(csv), "dates.parquet": datesParquet(t),
-		"nested.parquet": nestedParquet(t), "totals.xlsx": totalsWorkbook(t), "levels.xlsx": levelsWorkbook(t),
+		"nested.parquet": nestedParquet(t), "totals.xlsx": totalsWorkbook(t), "levels.xlsx": levelsWorkbook(t), "typedtotals.xlsx": typedTotalsWorkbook(t),
 		"formula.xlsx": formulaWorkbook(t), "shown.xlsx": shownWorkbook(t), "bomb.xlsx": claimingWorkbook(t),
 		"formula0.xlsx": emptyValueFormula(t, formulaWorkbook(t)), "sheets.xlsx": sheetsWorkbook(t),
 		"book.xlsx":      toWorkbook(t, []byte(strings.ReplaceAll(csv, "safety", "y"))),
@@ -469,6 +469,13 @@ func bookOf(t *testing.T, rows [][]any, more func(*excelize.File)) []byte {
 		t.Fatal(err)
 	}
 	return b.Bytes()
+}
+
+// typedTotalsWorkbook is totalsWorkbook's table with its row of totals
+// typed as numbers, labelled Total in a column of its own.
+func typedTotalsWorkbook(t *testing.T) []byte {
+	t.Helper()
+	return bookOf(t, [][]any{{"y", "a", "b", "note"}, {1, 0.5, 1}, {2, 0.25, 0}, {1, 0.75, 1}, {2, 0.125, 1}, {1, 0.375, 0}, {2, 1, 1}, {nil, 3, 4, "Total"}}, nil)
 }
 
 // levelsWorkbook holds, in its column x, the numbers 2.5, 3 and 4.25 as
@@ -2104,6 +2111,8 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("want %q in\n%s", want, errs)
 				}
 			}},
+		{id: "X32", name: "a row of totals typed as numbers, labelled Total", args: fitArgs(d("typedtotals.xlsx"), "--predictors", "a,b"), code: 1,
+			want: []string{"ordplan: typedtotals.xlsx:8: column \"a\": row 8 of sheet \"Sheet1\" looks like a row of totals, not a row of data, and would be read as one: cell D8 says \"Total\", and the numbers of the used columns in it are the sums of the rows above (B8 holds \"3\", the sum of the column's cells above it); delete the row, or move the totals to another sheet (a blank row above them does not end the table: blank rows are skipped and the rows below them read)\n"}},
 		{id: "X17", name: "a spreadsheet error value in a used column", args: fitArgs(d("formula.xlsx"), "--predictors", "b"), code: 1,
 			want: []string{`formula.xlsx:4: column "b": value "#DIV/0!" is not a number; it is a spreadsheet's error value: correct the formula that gave it, or list "#DIV/0!" among the missing-value markers (data.missing_values)`}},
 		{id: "X18", name: "a workbook's dates used as a number", args: fitArgs(d("shown.xlsx"), "--predictors", "a,day"), code: 1,

@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"html"
 	"io"
+	"math"
 	"path"
 	"regexp"
 	"slices"
@@ -276,8 +277,10 @@ var spreadsheetErrors = map[string]bool{
 // formula (<f t="shared" si="0"/>), as a formula filled along a row is
 // saved, has it read through excelize, which spells it out for the cell
 // (GetCellFormula: =SUM(C2:C41) beside =SUM(B2:B41)), when the shared
-// formula's text calls an aggregating function over a range. Call it
-// before withoutRows.
+// formula's text calls an aggregating function over a range. A cell's own
+// formula that aggregates a defined name or a table's column covering
+// the cell's column (=SUM(Scores), =SUBTOTAL(109,Table1[score]):
+// namedRanges.aggregate) is one too. Call it before withoutRows.
 func totalFormulas(f *excelize.File, sheet string, x []byte, h int) map[int]map[int]string {
 	var out map[int]map[int]string
 	add := func(col, row int, formula string) {
@@ -295,6 +298,7 @@ func totalFormulas(f *excelize.File, sheet string, x []byte, h int) map[int]map[
 	}
 	var sharing []shared
 	aggregates := map[string]bool{} // shared formulas that may aggregate a range
+	names := sheetNames(f, sheet)
 	eachFormula(x, func(col, row int, tag, cell []byte, prefix string) {
 		gt := bytes.IndexByte(cell, '>')
 		if gt < 1 {
@@ -307,7 +311,7 @@ func totalFormulas(f *excelize.File, sheet string, x []byte, h int) map[int]map[
 			if t == "shared" && sharedAggregate(body, col) {
 				aggregates[si] = true
 			}
-			if row > h && aggregateOver(body, col) {
+			if row > h && (aggregateOver(body, col) || names.aggregate(body, col)) {
 				add(col, row, body)
 			}
 		case t == "shared" && row > h:
@@ -363,6 +367,139 @@ func aggregateOver(formula string, col int) bool {
 	return false
 }
 
+// namedRanges are the names a sheet's formulas may aggregate its columns
+// by: the workbook's defined names that refer to one column of the sheet
+// (upper case -> column, 1-based), and the sheet's tables, each with the
+// name of each of its columns (its header row's cells).
+type namedRanges struct {
+	defined map[string]int
+	tables  []namedTable
+}
+
+// namedTable is a table of a sheet: its name, first column and row, and
+// its columns' names in order.
+type namedTable struct {
+	name      string
+	col, row  int
+	lastCol   int
+	lastRow   int
+	colNames  []string
+	hasHeader bool
+}
+
+// sheetNames reads the defined names of workbook f that refer to a range
+// of one column of sheet (Sheet1!$B$2:$B$41, scoped to the workbook or to
+// the sheet) and the sheet's tables; nil when there are none.
+func sheetNames(f *excelize.File, sheet string) *namedRanges {
+	var n namedRanges
+	for _, d := range f.GetDefinedName() {
+		if d.Scope != "" && d.Scope != "Workbook" && d.Scope != sheet {
+			continue
+		}
+		ref := strings.TrimPrefix(strings.TrimSpace(d.RefersTo), "=")
+		i := strings.LastIndexByte(ref, '!')
+		if i < 0 || strings.ContainsAny(ref[i+1:], ",( ") {
+			continue
+		}
+		on := ref[:i]
+		if len(on) > 1 && on[0] == '\'' && on[len(on)-1] == '\'' {
+			on = strings.ReplaceAll(on[1:len(on)-1], "''", "'")
+		}
+		cells := strings.ReplaceAll(ref[i+1:], "$", "")
+		m := cellRange.FindStringSubmatch(cells)
+		if on != sheet || m == nil || m[0] != cells || !strings.EqualFold(m[1], m[3]) {
+			continue
+		}
+		col, err := excelize.ColumnNameToNumber(m[1])
+		if err != nil {
+			continue
+		}
+		if n.defined == nil {
+			n.defined = map[string]int{}
+		}
+		n.defined[strings.ToUpper(d.Name)] = col
+	}
+	tables, _ := f.GetTables(sheet)
+	for _, t := range tables {
+		a, b, ok := strings.Cut(t.Range, ":")
+		if !ok {
+			continue
+		}
+		c1, r1, err1 := excelize.CellNameToCoordinates(a)
+		c2, r2, err2 := excelize.CellNameToCoordinates(b)
+		if err1 != nil || err2 != nil || c2 < c1 {
+			continue
+		}
+		nt := namedTable{name: t.Name, col: c1, row: r1, lastCol: c2, lastRow: r2, hasHeader: t.ShowHeaderRow == nil || *t.ShowHeaderRow}
+		if nt.hasHeader {
+			for c := c1; c <= c2; c++ {
+				ref, _ := excelize.CoordinatesToCellName(c, r1)
+				v, _ := f.GetCellValue(sheet, ref)
+				nt.colNames = append(nt.colNames, strings.TrimSpace(v))
+			}
+		}
+		n.tables = append(n.tables, nt)
+	}
+	if n.defined == nil && n.tables == nil {
+		return nil
+	}
+	return &n
+}
+
+// nameChar reports whether c may be part of a name in a formula.
+func nameChar(c byte) bool {
+	return c == '_' || c == '.' || c == '\\' || c >= '0' && c <= '9' || c >= 'A' && c <= 'Z' || c >= 'a' && c <= 'z' || c >= 0x80
+}
+
+// aggregate reports whether formula calls an aggregating function
+// (aggregateCall) and holds a defined name referring to a range of column
+// col of the sheet, or a reference to the column of a table of the sheet
+// that is column col (Table1[score], Table1[[score]], Table1[[#Data],[score]],
+// Table1[[#All],[score]]: how a file writes a table's references, with its
+// name, also within the table), not to one row of it ([@score]).
+func (n *namedRanges) aggregate(formula string, col int) bool {
+	if n == nil {
+		return false
+	}
+	if _, ok := aggregating(formula, col); !ok {
+		return false
+	}
+	upper := strings.ToUpper(formula)
+	for i := 0; i < len(upper); {
+		if !nameChar(upper[i]) || i > 0 && (nameChar(upper[i-1]) || upper[i-1] == '!' || upper[i-1] == '[' || upper[i-1] == '@') {
+			i++
+			continue
+		}
+		j := i
+		for j < len(upper) && nameChar(upper[j]) {
+			j++
+		}
+		if c, ok := n.defined[upper[i:j]]; ok && c == col && (j == len(upper) || upper[j] != '(' && upper[j] != '[') {
+			return true
+		}
+		i = j
+	}
+	for _, t := range n.tables {
+		if col < t.col || col > t.lastCol || !t.hasHeader || t.colNames[col-t.col] == "" {
+			continue
+		}
+		name, c := strings.ToUpper(t.name), strings.ToUpper(t.colNames[col-t.col])
+		for _, ref := range []string{name + "[" + c + "]", name + "[[" + c + "]]", name + "[[#DATA],[" + c + "]]", name + "[[#ALL],[" + c + "]]", name + "[[#DATA], [" + c + "]]", name + "[[#ALL], [" + c + "]]"} {
+			for k := 0; ; {
+				at := strings.Index(upper[k:], ref)
+				if at < 0 {
+					break
+				}
+				if at += k; at == 0 || !nameChar(upper[at-1]) && upper[at-1] != '!' {
+					return true
+				}
+				k = at + 1
+			}
+		}
+	}
+	return false
+}
+
 // sharedAggregate reports whether a shared formula, of text formula in
 // column col, may aggregate its own column in a cell that shares it: it
 // calls an aggregating function, and some range has each end in column
@@ -389,8 +526,10 @@ func sharedAggregate(formula string, col int) bool {
 // totalsRow refuses the data rows (below the header row) holding, in a
 // used column, a formula that aggregates the column (totalFormulas): the
 // first such cell by row, then by column, naming its cell, formula and
-// sheet and what to do. Columns the plan does not read are no matter.
-func (s *sheetRecords) totalsRow(cols []usedCol) *Error {
+// sheet and what to do; then a row of totals typed as numbers
+// (typedTotals, whose numbers d reads). Columns the plan does not read are
+// no matter.
+func (s *sheetRecords) totalsRow(cols []usedCol, d Dialect) *Error {
 	var rows []int
 	for row := range s.totals {
 		if row > s.headerLine {
@@ -409,9 +548,80 @@ func (s *sheetRecords) totalsRow(cols []usedCol) *Error {
 			continue
 		}
 		ref, _ := excelize.CoordinatesToCellName(s.lead+hit.index+1, row)
-		return &Error{Line: row, Column: hit.name, Msg: fmt.Sprintf("cell %s of sheet %s holds %s, which aggregates the column's own cells: row %d looks like a row of totals, not a row of data, and would be read as one; delete the row, or move the totals to another sheet (a blank row above them does not end the table: blank rows are skipped and the rows below them read)", ref, quoteCell(s.read.Name), quoteCell(s.totals[row][s.lead+hit.index+1]), row)}
+		return &Error{Line: row, Column: hit.name, Msg: fmt.Sprintf("cell %s of sheet %s holds %s, which aggregates the column's own cells: row %d looks like a row of totals, not a row of data, and would be read as one; %s", ref, quoteCell(s.read.Name), quoteCell(s.totals[row][s.lead+hit.index+1]), row, totalsAdvice)}
 	}
-	return nil
+	return s.typedTotals(cols, d)
+}
+
+// totalsAdvice is what the messages about a row of totals say to do.
+const totalsAdvice = "delete the row, or move the totals to another sheet (a blank row above them does not end the table: blank rows are skipped and the rows below them read)"
+
+// totalLabels are the words of a cell that names a row of totals.
+var totalLabels = map[string]bool{"total": true, "totals": true, "sum": true, "grand total": true, "sum total": true, "overall total": true}
+
+// typedTotals refuses a row of totals typed as numbers (or saved without
+// the formulas that made them) at the foot of the sheet's table: its last
+// filled row has a cell that says Total (totalLabels, in any column) and,
+// in every other used column where it is filled, a number, the sum of
+// the numbers above it in the column (two at least; equal but for the
+// rounding of the summation, 1e-12 of the sum of their sizes), not 0 in
+// one column at least. A data row rarely does both, so no other row is
+// taken for one.
+func (s *sheetRecords) typedTotals(cols []usedCol, d Dialect) *Error {
+	last := len(s.rows) - 1
+	for last > 0 && blankRow(s.rows[last]) {
+		last--
+	}
+	row := s.first + last
+	if row <= s.headerLine || len(cols) == 0 {
+		return nil
+	}
+	rec := s.rows[last]
+	label := -1
+	for j, c := range rec {
+		if totalLabels[strings.ToLower(strings.TrimSuffix(strings.Join(strings.Fields(c), " "), ":"))] {
+			label = j
+			break
+		}
+	}
+	if label < 0 {
+		return nil
+	}
+	var hit *usedCol
+	var sum string
+	for i, c := range cols {
+		if c.index >= len(rec) || c.index == label || strings.TrimSpace(rec[c.index]) == "" {
+			continue
+		}
+		v, msg := d.number(strings.TrimSpace(rec[c.index]))
+		if msg != "" {
+			return nil
+		}
+		var total, size float64
+		n := 0
+		for k := s.headerLine - s.first + 1; k < last; k++ {
+			if c.index >= len(s.rows[k]) {
+				continue
+			}
+			if x, msg := d.number(strings.TrimSpace(s.rows[k][c.index])); msg == "" {
+				total += x
+				size += math.Abs(x)
+				n++
+			}
+		}
+		if n < 2 || math.Abs(v-total) > 1e-12*size {
+			return nil
+		}
+		if hit == nil && v != 0 {
+			hit, sum = &cols[i], strings.TrimSpace(rec[c.index])
+		}
+	}
+	if hit == nil {
+		return nil
+	}
+	labelRef, _ := excelize.CoordinatesToCellName(s.lead+label+1, row)
+	ref, _ := excelize.CoordinatesToCellName(s.lead+hit.index+1, row)
+	return &Error{Line: row, Column: hit.name, Msg: fmt.Sprintf("row %d of sheet %s looks like a row of totals, not a row of data, and would be read as one: cell %s says %s, and the numbers of the used columns in it are the sums of the rows above (%s holds %s, the sum of the column's cells above it); %s", row, quoteCell(s.read.Name), labelRef, quoteCell(strings.TrimSpace(rec[label])), ref, quoteCell(sum), totalsAdvice)}
 }
 
 // aggregating is the letters of column col (1-based) when formula calls an

@@ -195,7 +195,7 @@ func (r *reader) read(in io.Reader) (*Dataset, error) {
 func (r *reader) columnChecks() error {
 	if sr, ok := r.cr.(*sheetRecords); ok {
 		sr.markHidden(r.cols)
-		if e := sr.totalsRow(r.cols); e != nil {
+		if e := sr.totalsRow(r.cols, r.opt.Dialect); e != nil {
 			e.File = r.file
 			return e
 		}

@@ -86,3 +86,122 @@ func TestAggregateOver(t *testing.T) {
 		}
 	}
 }
+
+// bookRows is a workbook whose sheet "s" holds rows from A1, changed by
+// more before it is written.
+func bookRows(t *testing.T, rows [][]any, more func(f *excelize.File)) []byte {
+	t.Helper()
+	f := excelize.NewFile()
+	defer f.Close()
+	f.SetSheetName("Sheet1", "s")
+	for i, r := range rows {
+		cell, _ := excelize.CoordinatesToCellName(1, i+1)
+		if err := f.SetSheetRow("s", cell, &r); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if more != nil {
+		more(f)
+	}
+	var b bytes.Buffer
+	if err := f.Write(&b); err != nil {
+		t.Fatal(err)
+	}
+	return b.Bytes()
+}
+
+// A row of totals written through a defined name or a table's column
+// (=SUM(Scores), =SUBTOTAL(109,T1[a])) is refused as one written with a
+// range is; a name or a table column of another column is no matter.
+func TestWorkbookNamedTotals(t *testing.T) {
+	data := [][]any{{"y", "a", "b"}, {1, 0.5, 1.0}, {2, 3.0, 2.0}, {1, 7.0, 3.0}, {2, 1.5, 4.0}, {1, -1.0, 0.0}, {2, 2.0, 1.0}, {nil, 13.0, 11.0}}
+	for _, c := range []struct {
+		name  string
+		more  func(f *excelize.File)
+		preds []string
+		want  string // "" when the data are read (row 8 dropped for its outcome)
+	}{
+		{"defined name", func(f *excelize.File) {
+			f.SetDefinedName(&excelize.DefinedName{Name: "Scores", RefersTo: "s!$B$2:$B$7"})
+			f.SetCellFormula("s", "B8", "SUM(Scores)")
+		}, []string{"a", "b"}, `t.xlsx:8: column "a": cell B8 of sheet "s" holds "=SUM(Scores)", which aggregates the column's own cells`},
+		{"defined name of another column", func(f *excelize.File) {
+			f.SetDefinedName(&excelize.DefinedName{Name: "Scores", RefersTo: "s!$B$2:$B$7"})
+			f.SetCellValue("s", "C8", 7.0) // not the sum of b
+			f.SetCellFormula("s", "C8", "SUM(Scores)")
+		}, []string{"b"}, ""},
+		{"defined name of another sheet", func(f *excelize.File) {
+			f.NewSheet("other")
+			f.SetDefinedName(&excelize.DefinedName{Name: "Scores", RefersTo: "other!$B$2:$B$7"})
+			f.SetCellValue("s", "B8", 7.0)
+			f.SetCellFormula("s", "B8", "SUM(Scores)")
+		}, []string{"a"}, ""},
+		{"table column", func(f *excelize.File) {
+			f.AddTable("s", &excelize.Table{Range: "A1:C7", Name: "T1"})
+			f.SetCellFormula("s", "C8", "SUBTOTAL(109,T1[b])")
+		}, []string{"b"}, `t.xlsx:8: column "b": cell C8 of sheet "s" holds "=SUBTOTAL(109,T1[b])", which aggregates the column's own cells`},
+		{"table column, data and header", func(f *excelize.File) {
+			f.AddTable("s", &excelize.Table{Range: "A1:C7", Name: "T1"})
+			f.SetCellValue("s", "B8", 7.0)
+			f.SetCellFormula("s", "B8", "AVERAGE(T1[[#Data],[a]])")
+		}, []string{"a"}, `cell B8 of sheet "s" holds "=AVERAGE(T1[[#Data],[a]])"`},
+		{"table's other column", func(f *excelize.File) {
+			f.AddTable("s", &excelize.Table{Range: "A1:C7", Name: "T1"})
+			f.SetCellValue("s", "C8", 7.0)
+			f.SetCellFormula("s", "C8", "SUM(T1[a])")
+		}, []string{"b"}, ""},
+		{"one row of a table's column", func(f *excelize.File) {
+			f.AddTable("s", &excelize.Table{Range: "A1:C8", Name: "T1"})
+			f.SetCellValue("s", "C8", 7.0)
+			f.SetCellFormula("s", "C8", "SUM(T1[@b],1)")
+		}, []string{"b"}, ""},
+	} {
+		raw := bookRows(t, data, c.more)
+		d, err := readBytes(raw, "t.xlsx", Options{Outcome: "y", Predictors: c.preds, Dialect: Dialect{Sheet: "s"}})
+		switch {
+		case c.want == "" && (err != nil || d.N != 6):
+			t.Errorf("%s: %v", c.name, err)
+		case c.want != "" && (err == nil || !strings.Contains(err.Error(), c.want)):
+			t.Errorf("%s: got %v, want %s", c.name, err, c.want)
+		}
+	}
+}
+
+// A row of totals typed as numbers at the foot of the table, a cell
+// saying Total and each used column's number the sum of the column above,
+// is refused; a last row saying Total whose numbers are not the sums
+// (a level named total), or sums without the word, is read.
+func TestWorkbookTypedTotals(t *testing.T) {
+	rows := func(label any, a, b any) [][]any {
+		return [][]any{{"y", "kind", "a", "b"}, {1, "partial", 0.1, 1}, {2, "total", 0.2, 2}, {1, "partial", 0.3, 3}, {2, "partial", 1.5, 4}, {nil}, {nil, label, a, b}}
+	}
+	for _, c := range []struct {
+		name   string
+		rows   [][]any
+		preds  []string
+		impute bool
+		want   string
+	}{
+		{"typed totals", rows("Total", 2.1, 10), []string{"a", "b"}, true, `t.xlsx:7: column "a": row 7 of sheet "s" looks like a row of totals, not a row of data, and would be read as one: cell B7 says "Total", and the numbers of the used columns in it are the sums of the rows above (C7 holds "2.1", the sum of the column's cells above it); delete the row, or move the totals to another sheet (a blank row above them does not end the table: blank rows are skipped and the rows below them read)`},
+		{"typed totals, label used as a level", rows("Sum:", 2.1, 10), []string{"b", "kind|partial/total"}, false, `t.xlsx:7: column "b": row 7 of sheet "s" looks like a row of totals`},
+		{"a column not summed", rows("Total", 2.1, 9), []string{"a", "b"}, true, ""},
+		{"sums without the word", rows("partial", 2.1, 10), []string{"a", "b"}, true, ""},
+		{"zeros", [][]any{{"y", "kind", "a"}, {1, "x", 0}, {2, "x", 0}, {1, "total", 0}}, []string{"a"}, false, ""},
+	} {
+		opt := Options{Outcome: "y", Dialect: Dialect{Sheet: "s"}, KeepIncomplete: c.impute}
+		for _, p := range c.preds {
+			name, levels, ok := strings.Cut(p, "|")
+			opt.Predictors = append(opt.Predictors, name)
+			if ok {
+				opt.PredictorLevels = map[string][]string{name: strings.Split(levels, "/")}
+			}
+		}
+		_, err := readBytes(bookRows(t, c.rows, nil), "t.xlsx", opt)
+		switch {
+		case c.want == "" && err != nil:
+			t.Errorf("%s: %v", c.name, err)
+		case c.want != "" && (err == nil || !strings.Contains(err.Error(), c.want)):
+			t.Errorf("%s: got %v, want %s", c.name, err, c.want)
+		}
+	}
+}
