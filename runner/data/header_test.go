@@ -19,8 +19,8 @@ func TestReadHeader(t *testing.T) {
 	}
 	for _, c := range []struct{ in, want string }{
 		{"", `h.csv: file is empty (a header line naming the columns is needed)`},
-		{"y,a,a\n", `h.csv:1: header: column name "a" appears twice (columns 2 and 3)`},
-		{"y,,a\n", `h.csv:1: header: column 2 has no name`},
+		{"y,a,a\n", `h.csv:1: header: column name "a" appears twice (columns 2 and 3): rename one, since a plan finds a column by its name`},
+		{"y,,a\n", `h.csv:1: header: column 2 has no name: name it (or, if the column holds nothing, delete it)`},
 		{"y,\"a\n", `h.csv:1: malformed CSV at character 6: extraneous or missing " in quoted-field`},
 	} {
 		_, err := ReadHeader(strings.NewReader(c.in), "h.csv")
@@ -75,7 +75,7 @@ func TestTrailingUnnamedColumns(t *testing.T) {
 	if p, err := ProfileFile(path, nil, Dialect{}); err != nil || len(p) != 3 || p[2].Name != "g" || p[2].Distinct != 2 {
 		t.Errorf("profile: %v %+v", err, p)
 	}
-	if _, err := Read(strings.NewReader("y,a,\n1,2,\n2,3\n"), "t.csv", Options{Outcome: "y", Predictors: []string{"a"}}); err == nil || err.Error() != "t.csv:3: row has 2 fields but the header has 3" {
+	if _, err := Read(strings.NewReader("y,a,\n1,2,\n2,3\n"), "t.csv", Options{Outcome: "y", Predictors: []string{"a"}}); err == nil || err.Error() != "t.csv:3: row has 2 fields but the header has 3 (the last 1 unnamed: the header line ends with 1 delimiter after its last name, which this row does not have: remove it from the header line)" {
 		t.Errorf("a row without the trailing field: %v", err)
 	}
 }

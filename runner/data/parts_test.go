@@ -89,7 +89,7 @@ func TestPartsBadInput(t *testing.T) {
 		{[]string{a, empty}, "empty.csv: no data rows after the header; every part needs rows"},
 		{[]string{a, bad}, `bad.csv:3: column "a": value "high" is not a number`},
 		{[]string{a, zero}, "zero.csv: file is empty (a header line naming the columns is needed)"},
-		{[]string{a, twice}, `twice.csv:1: header: column name "a" appears twice (columns 2 and 3)`},
+		{[]string{a, twice}, `twice.csv:1: header: column name "a" appears twice (columns 2 and 3): rename one, since a plan finds a column by its name`},
 	} {
 		_, err := LoadFiles(c.parts, opt)
 		if err == nil || !strings.Contains(err.Error(), c.want) {

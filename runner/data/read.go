@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"io"
 	"io/fs"
+	"ordplan/internal/words"
 	"strings"
 	"unicode"
 )
@@ -115,6 +116,7 @@ type reader struct {
 	cr      records
 	cols    []usedCol
 	width   int
+	named   int    // the header's fields up to its last name
 	raw     []byte // the whole input, when read before (readBytes)
 	// again is the input of ReadStream when it can be read again from its
 	// start, for the text of a line an error names (quoteField).
@@ -149,7 +151,7 @@ func (r *reader) csvErr(err error, rec []string) *Error {
 	var pe *csv.ParseError
 	if errors.As(err, &pe) {
 		if errors.Is(pe.Err, csv.ErrFieldCount) {
-			e := r.fail(pe.StartLine, "", "row has %d fields but the header has %d", len(rec), r.width)
+			e := r.fail(pe.StartLine, "", "row has %d fields but the header has %d%s", len(rec), r.width, r.unnamedTail(len(rec)))
 			e.Err = err
 			return e
 		}
@@ -167,6 +169,25 @@ func (r *reader) csvErr(err error, rec []string) *Error {
 		return e
 	}
 	return &Error{File: r.file, Msg: "cannot read file: " + osReason(err), Err: err}
+}
+
+// unnamedTail says, of a row of n fields that the header outnumbers by
+// its unnamed fields after the last named one alone (a header line that
+// ends with a delimiter the rows do not have), that this is so; "" for
+// any other row.
+func (r *reader) unnamedTail(n int) string {
+	if n >= r.width || n < r.named || r.named == 0 {
+		return ""
+	}
+	if _, sheet := r.cr.(*sheetRecords); sheet {
+		return ""
+	}
+	k := r.width - r.named
+	them := "it"
+	if k > 1 {
+		them = "them"
+	}
+	return fmt.Sprintf(" (the last %d unnamed: the header line ends with %s after its last name, which this row does not have: remove %s from the header line)", k, words.Count(k, "delimiter", "delimiters"), them)
 }
 
 func (r *reader) read(in io.Reader) (*Dataset, error) {
@@ -266,6 +287,7 @@ func (r *reader) names() ([]string, map[string]int, error) {
 	for len(hdr) > 1 && strings.TrimSpace(hdr[len(hdr)-1]) == "" {
 		hdr = hdr[:len(hdr)-1]
 	}
+	r.named = len(hdr)
 	names := make([]string, len(hdr))
 	where := make(map[string]int, len(hdr))
 	for i, h := range hdr {
@@ -277,13 +299,13 @@ func (r *reader) names() ([]string, map[string]int, error) {
 				}
 				return nil, nil, r.fail(line, "", "header: column %d (cell %s) has no name: name it (or, if the column holds nothing, delete it)", i+1, ref)
 			}
-			return nil, nil, r.fail(line, "", "header: column %d has no name", i+1)
+			return nil, nil, r.fail(line, "", "header: column %d has no name: name it (or, if the column holds nothing, delete it)", i+1)
 		}
 		if j, dup := where[ColumnKey(n)]; dup {
 			if names[j] != n {
 				return nil, nil, r.fail(line, "", "header: column names %s (column %d) and %s (column %d) are one name written in two Unicode forms (one with composed letters, one with letters and combining accents), which a plan cannot tell apart: rename one", quoteCell(names[j]), j+1, quoteCell(n), i+1)
 			}
-			return nil, nil, r.fail(line, "", "header: column name %s appears twice (columns %d and %d)", quoteCell(n), j+1, i+1)
+			return nil, nil, r.fail(line, "", "header: column name %s appears twice (columns %d and %d): rename one, since a plan finds a column by its name", quoteCell(n), j+1, i+1)
 		}
 		where[ColumnKey(n)] = i
 		names[i] = n
