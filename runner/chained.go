@@ -148,6 +148,12 @@ func imputeChained(a *Analysis, r Reading, ds *data.Dataset, seed uint64, frozen
 			}
 		}
 	}
+	var de *design.Error
+	if err != nil && frozen == nil && errors.As(err, &de) && de.Levels {
+		// A level no row has, imputed or not: named and explained as
+		// on the rows without imputation.
+		return nil, nil, nil, a.designRefusal(r, observed, de)
+	}
 	if err != nil {
 		return nil, nil, nil, fmt.Errorf("%s: %v (outcome %q)", a.Source, err, r.Outcome)
 	}

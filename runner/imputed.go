@@ -174,7 +174,7 @@ func imputedSets(a *Analysis, r Reading) (*ImputedRun, []*data.Dataset, *design.
 func designSets(spec design.Spec, sets []*data.Dataset) (*design.Design, []*fit.Data, error) {
 	dz, d0, err := buildDesign(spec, sets[0])
 	if err != nil {
-		return nil, nil, fmt.Errorf("%v (imputed set 1)", err)
+		return nil, nil, fmt.Errorf("%w (imputed set 1)", err)
 	}
 	out := []*fit.Data{d0}
 	for k, ds := range sets[1:] {

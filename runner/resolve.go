@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"maps"
-	"math"
 	"slices"
 	"strconv"
 	"strings"
@@ -479,17 +478,7 @@ func (a *Analysis) Load(r Reading) (*Loaded, error) {
 	}
 	dz, d, err := buildDesign(r.Design, ds)
 	if err != nil {
-		err = levelsAfterLoss(err, ds, func(col, level string) string {
-			inc, err := a.loadIncomplete(r)
-			if err != nil {
-				return ""
-			}
-			return levelLost(inc, col, slices.Index(r.Options.PredictorLevels[col], level))
-		})
-		if !a.Plan {
-			return nil, fmt.Errorf("%s: %v", a.DataFile, err)
-		}
-		return nil, r.designError(a, err)
+		return nil, a.designRefusal(r, ds, err)
 	}
 	if err := a.checkPanels(r, ds, dz); err != nil {
 		return nil, err
@@ -497,14 +486,32 @@ func (a *Analysis) Load(r Reading) (*Loaded, error) {
 	return &Loaded{Data: ds, Design: dz, FitData: d}, nil
 }
 
+// designRefusal is the refusal of the design built on an outcome's rows
+// ds (err), as a plan (at its key: Reading.designError) or ordplan fit
+// (after the data file) names it, a refusal of a level saying why no
+// row used has it (levelsAfterLoss).
+func (a *Analysis) designRefusal(r Reading, ds *data.Dataset, err error) error {
+	err = levelsAfterLoss(err, ds, func(col, level string) string {
+		var keys func([]data.DropCount) []string
+		if a.Plan {
+			keys = r.lossKeys
+		}
+		return data.LevelDrops(a.Paths(), r.Options, col, level, keys)
+	})
+	if !a.Plan {
+		return fmt.Errorf("%s: %v", a.DataFile, err)
+	}
+	return r.designError(a, err)
+}
+
 // levelsAfterLoss is err, a refusal of a categorical column's levels
 // against the rows used (a declared level or the reference that no row
 // has, one level alone: design.Error.Levels), ending, when more rows were
 // dropped than kept, with why so few remain (Dataset.FewRowsSentence), as
 // the other refusals counting the rows used do, or else, for a level
-// whose rows were all dropped for missing values, with how many and for
-// which columns (levelLost on the rows read as imputation keeps them,
-// incomplete, read only then); and then its advice (If these are the rows
+// whose rows were all dropped (for the subset, missing values or a weight
+// of 0), with how many and for what (lost: data.LevelDrops, the data read
+// again only then); and then its advice (If these are the rows
 // meant, ...), which follows the explanation; any other err as it is.
 func levelsAfterLoss(err error, ds *data.Dataset, lost func(col, level string) string) error {
 	var de *design.Error
@@ -525,51 +532,6 @@ func levelsAfterLoss(err error, ds *data.Dataset, lost func(col, level string) s
 		e.Fix = ""
 	}
 	return &e
-}
-
-// levelLost says that level li of categorical column col occurs in rows that
-// were dropped for missing values, counting them under the first column
-// each misses (the outcome, then the predictors in order), as the data's
-// count of dropped rows does: "It occurs in 104 rows of the data, each
-// dropped for a missing value (z: 104)"; "" when no row of inc (the rows
-// read with those missing values kept) has it.
-func levelLost(inc *data.Dataset, col string, li int) string {
-	j := slices.Index(inc.Predictors, col)
-	if j < 0 || li < 0 {
-		return ""
-	}
-	K := inc.K
-	by := make([]int, K+1) // 0: the outcome, 1+k: predictor k
-	n := 0
-	for i := 0; i < inc.N; i++ {
-		row := inc.X[i*K : (i+1)*K]
-		if row[j] != float64(li) {
-			continue
-		}
-		n++
-		if inc.Y[i] < 0 {
-			by[0]++
-			continue
-		}
-		if k := slices.IndexFunc(row, math.IsNaN); k >= 0 {
-			by[1+k]++
-		}
-	}
-	if n == 0 {
-		return ""
-	}
-	var parts []string
-	for k, c := range by {
-		if c == 0 {
-			continue
-		}
-		name := inc.Outcome
-		if k > 0 {
-			name = inc.Predictors[k-1]
-		}
-		parts = append(parts, fmt.Sprintf("%s: %d", name, c))
-	}
-	return fmt.Sprintf("It occurs in %s of the data, each dropped for a missing value (%s)", words.Count(n, "row", "rows"), strings.Join(parts, ", "))
 }
 
 // checkPanels refuses a numeric column of report.panels_by that holds a

@@ -226,14 +226,62 @@ func termItems(dir string) []badInput {
 				os.WriteFile(filepath.Join(dir, "catsouth.csv"), []byte(b.String()), 0o644)
 				pl = filepath.Join(dir, "T6south.yaml")
 				os.WriteFile(pl, []byte(termsEdit("file: cat.csv", "file: catsouth.csv", "[site, x]", "[site, x, z]")), 0o644)
-				want = `level "south" is declared but occurs in no row used. It occurs in 20 rows of the data, each dropped for a missing value (z: 20)` + advice
+				// A plan names the key behind the loss; ordplan fit has none.
+				want = `level "south" is declared but occurs in no row used. It occurs in 20 rows of the data, each dropped for missing values (z: 20%s)` + advice
 				for _, args := range [][]string{{"check", pl}, {"run", pl, "--out", filepath.Join(dir, "T6south-out"), "--quiet"},
 					fitArgs(filepath.Join(dir, "catsouth.csv"), "--predictors", "site|levels=north/east/south,x,z")} {
-					if _, e, code := runCLI(args...); code != 1 || !strings.Contains(e, want) {
-						t.Errorf("%s, the rows of south dropped: exit %d:\n%s\nwant %q", args[0], code, e, want)
+					w := fmt.Sprintf(want, "; plan key data.missing")
+					if args[0] == "fit" {
+						w = fmt.Sprintf(want, "")
+					}
+					if _, e, code := runCLI(args...); code != 1 || !strings.Contains(e, w) {
+						t.Errorf("%s, the rows of south dropped: exit %d:\n%s\nwant %q", args[0], code, e, w)
 					}
 				}
-				ref := `the reference level "south" occurs in no row used. It occurs in 20 rows of the data, each dropped for a missing value (z: 20). If these are the rows meant, choose another reference`
+				// The same level lost to a subset on another column, or to
+				// weights of 0, is explained alike: the subset's condition
+				// or the weights column, the count, the plan key.
+				b.Reset()
+				for k, l := range strings.Split(strings.TrimSpace(string(src)), "\n") {
+					switch {
+					case k == 0:
+						l += ",region,w"
+					case strings.Contains(l, ",south,"):
+						l += ",b,0"
+					default:
+						l += ",a,1"
+					}
+					b.WriteString(l + "\n")
+				}
+				os.WriteFile(filepath.Join(dir, "catregion.csv"), []byte(b.String()), 0o644)
+				// The same with one x missing, imputed: the level is named
+				// and explained alike (not at predictors[0], "in imputed set 1").
+				lines := strings.SplitN(b.String(), "\n", 3)
+				f := strings.Split(lines[1], ",")
+				f[2] = ""
+				lines[1] = strings.Join(f, ",")
+				os.WriteFile(filepath.Join(dir, "catregionna.csv"), []byte(strings.Join(lines, "\n")), 0o644)
+				inRegion := "subset:\n  - {column: region, one_of: [a]}\npredictors:"
+				for _, c := range []struct{ name, data, edit, why, key, flag string }{
+					{"subset", "catregion.csv", inRegion, `the subset (outside the subset region in {a}: 20`, "subset[0]", ""},
+					{"imputed", "catregionna.csv, missing: impute", inRegion, `the subset (outside the subset region in {a}: 20`, "subset[0]", ""},
+					{"weights", "catregion.csv, weights: w", "predictors:", `zero weight (w = 0: 20`, "data.weights", "w"},
+				} {
+					pl = filepath.Join(dir, "T6"+c.name+".yaml")
+					body := termsEdit("file: cat.csv", "file: "+c.data, "predictors:", c.edit)
+					os.WriteFile(pl, []byte(body), 0o644)
+					w := `level "south" is declared but occurs in no row used. It occurs in 20 rows of the data, each dropped for ` + c.why
+					if _, e, code := runCLI("check", pl); code != 1 || !strings.Contains(e, w+"; plan key "+c.key+")"+advice) {
+						t.Errorf("check, the rows of south dropped by %s: exit %d:\n%s\nwant %q", c.name, code, e, w)
+					}
+					if c.flag != "" {
+						args := fitArgs(filepath.Join(dir, "catregion.csv"), "--predictors", "site|levels=north/east/south,x", "--weights", c.flag)
+						if _, e, code := runCLI(args...); code != 1 || !strings.Contains(e, w+")"+advice) {
+							t.Errorf("fit, the rows of south of weight 0: exit %d:\n%s\nwant %q", code, e, w)
+						}
+					}
+				}
+				ref := `the reference level "south" occurs in no row used. It occurs in 20 rows of the data, each dropped for missing values (z: 20). If these are the rows meant, choose another reference`
 				if _, e, code := runCLI(fitArgs(filepath.Join(dir, "catsouth.csv"), "--predictors", "site|levels=north/east/south|ref=south,x,z")...); code != 1 || !strings.Contains(e, ref) {
 					t.Errorf("fit, the reference's rows dropped: exit %d:\n%s\nwant %q", code, e, ref)
 				}

@@ -297,3 +297,41 @@ func dropList(dc []DropCount) string {
 	}
 	return s
 }
+
+// LevelDrops reads the data (paths, opt) for the rows whose cell of the
+// categorical predictor column col is level, and says why none of them
+// is used: "It occurs in 20 rows of the data, each dropped for the
+// subset (outside the subset region in {a}: 20)", the reasons and the
+// counts by column as the data's count of dropped rows gives them
+// (DropReasons, under the first reason that applies: the subset, a
+// missing value, a weight of 0), the plan keys behind them, keys of
+// those counts (nil: none), last in the parentheses ("...: 20; plan key
+// subset[0]"). "" when no row has the level, or some row of it is used,
+// or the data cannot be read so.
+func LevelDrops(paths []string, opt Options, col, level string, keys func([]DropCount) []string) string {
+	opt.OnlyLevel = &LevelRef{Column: col, Level: level}
+	// Read as a part is: no refusal for keeping no row, no judging of
+	// the subset's listed values on these rows alone, no rescaling.
+	opt.Part, opt.Sampling, opt.WholeWeights = true, false, nil
+	opt.Refuse, opt.KeepIncomplete = false, false
+	d, err := LoadFiles(paths, opt)
+	if err != nil || d.N > 0 || d.RowsDropped == 0 {
+		return ""
+	}
+	each := "each "
+	if d.RowsDropped == 1 {
+		each = ""
+	}
+	list := dropList(d.Dropped)
+	if keys != nil {
+		switch k := keys(d.Dropped); len(k) {
+		case 0:
+		case 1:
+			list += "; plan key " + k[0]
+		default:
+			list += "; plan keys " + words.AndList(k)
+		}
+	}
+	return fmt.Sprintf("It occurs in %s of the data, %sdropped for %s (%s)",
+		words.Count(d.RowsDropped, "row", "rows"), each, DropReasons(d.Dropped, opt.Weights), list)
+}

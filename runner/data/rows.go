@@ -60,6 +60,9 @@ func (r *reader) record(t *rowTally, d *Dataset, rec []string) error {
 	if r.repeatsHeader(rec) {
 		return r.headerAgain()
 	}
+	if r.opt.OnlyLevel != nil && !r.ofLevel(t, rec) {
+		return nil
+	}
 	if out, err := r.outsideSubset(t, rec); err != nil {
 		return err
 	} else if out >= 0 {
@@ -354,6 +357,25 @@ func (r *reader) outsideSubset(t *rowTally, rec []string) (int, error) {
 		}
 	}
 	return -1, nil
+}
+
+// ofLevel reports whether a record's cell of the column of
+// Options.OnlyLevel is its level (as parseRow reads a level).
+func (r *reader) ofLevel(t *rowTally, rec []string) bool {
+	lr := r.opt.OnlyLevel
+	for _, c := range r.cols {
+		if c.role != rolePredictor || c.name != lr.Column {
+			continue
+		}
+		idx, cat := t.levelIndex[c.name]
+		cell := strings.TrimSpace(rec[c.index])
+		if !cat || r.missingIn(c.name, cell) {
+			return false
+		}
+		l, ok := lookupText(idx, cell)
+		return ok && l == slices.Index(r.opt.PredictorLevels[c.name], lr.Level)
+	}
+	return false
 }
 
 // parseRow reads the used cells of a row: the outcome, the predictors
