@@ -25,6 +25,52 @@ func holdsAtSentence(text, where string) string {
 	return fmt.Sprintf("A restriction on a term that enters an interaction in the model tests that term's effect where the terms it interacts with have their columns at 0, as its odds ratios do (column Holds at): %s is tested at %s only, not at every value of the terms it interacts with; a test at every value also restricts the interaction's columns.", mdCode(text), where)
 }
 
+// partsOfColumns says, for each hypothesis that restricts some and not
+// all of the terms a data column makes (runner.HypothesisResult.
+// PartOfColumn), what it asks and where the test of the column as a whole
+// is: the row of the tests of each term that tests every term reading it
+// (runner.ColumnLabel), or, when they were not made, the hypothesis that
+// restricts every term.
+func partsOfColumns(or *runner.OutcomeResult) []string {
+	var out []string
+	seen := map[string]bool{}
+	for _, h := range or.Hypotheses {
+		for _, c := range h.PartOfColumn {
+			if key := h.Text + "\x00" + c.Column; !seen[key] {
+				seen[key] = true
+				out = append(out, partOfColumnSentence(or, h.Text, c))
+			}
+		}
+	}
+	return out
+}
+
+func partOfColumnSentence(or *runner.OutcomeResult, text string, c runner.ColumnTerms) string {
+	var others, whole []string
+	for _, t := range c.Terms {
+		if !slices.Contains(c.Named, t) {
+			others = append(others, mdText(t))
+		}
+		whole = append(whole, t+" = 0")
+	}
+	verb := "is"
+	if len(others) > 1 {
+		verb = "are"
+	}
+	term, adds := "term", "adds"
+	if len(c.Named) > 1 {
+		term, adds = "terms", "add"
+	}
+	named := words.AndList(words.Each(c.Named, mdText))
+	s := fmt.Sprintf("%s restricts %s %s, which data column %s makes together with %s: it asks what %s %s while %s %s held fixed, which cannot happen as the column changes, and not whether column %s is associated with the outcome.",
+		mdCode(text), term, named, mdText(c.Column), words.AndList(others), named, adds, words.AndList(others), verb, mdText(c.Column))
+	label := runner.ColumnLabel(c.Column)
+	if slices.ContainsFunc(or.TermTests, func(t runner.TermTest) bool { return t.Term == label }) {
+		return s + fmt.Sprintf(" For that, read the row %s of the tests of each term, which tests every term reading the column together, or write the hypothesis as %s.", mdText(label), mdCode(strings.Join(whole, "; ")))
+	}
+	return s + fmt.Sprintf(" For that, write the hypothesis as %s.", mdCode(strings.Join(whole, "; ")))
+}
+
 // writeHypotheses writes the Wald tests of the plan's hypotheses.
 func writeHypotheses(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	if len(or.Hypotheses) == 0 {
@@ -53,6 +99,9 @@ func writeHypotheses(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	where := at >= 0
 	if where {
 		d.p("%s", holdsAtSentence(or.Hypotheses[at].Text, or.Hypotheses[at].HoldsAt))
+	}
+	for _, p := range partsOfColumns(or) {
+		d.p("%s", p)
 	}
 	head := append([]string{"Hypothesis", "Plan line", "Model", "Estimate", "Std. error", pct(level) + " low", pct(level) + " high"}, testHead("", pooled)[1:]...)
 	if adjusted != "" {

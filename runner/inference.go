@@ -32,6 +32,20 @@ type HypothesisResult struct {
 	// as the odds ratios say it ("female = 0"; with several such terms,
 	// "dose: female = 0; female: dose = placebo"); empty otherwise.
 	HoldsAt string `json:"holds_at,omitempty"`
+	// PartOfColumn lists each data column that makes several terms (x
+	// beside log(x)) of which the hypothesis restricts some and not all:
+	// it then tests those terms with the column's others held fixed,
+	// which the column cannot do, and the test of the column as a whole
+	// is ColumnLabel's row of the tests of each term (partOfColumn).
+	PartOfColumn []ColumnTerms `json:"part_of_column,omitempty"`
+}
+
+// ColumnTerms is a data column that makes several terms: the terms
+// (Terms) and those a hypothesis names (Named).
+type ColumnTerms struct {
+	Column string   `json:"column"`
+	Terms  []string `json:"terms"`
+	Named  []string `json:"named"`
 }
 
 // MarginalSet is one kind of marginal effects of the chosen model.
@@ -435,9 +449,9 @@ func hypothesisTests(h plan.Hypothesis, or *OutcomeResult, level float64) []Hypo
 		out = append(out, HypothesisResult{Text: h.Text, Line: h.Line, Model: f.ID, Test: fit.WaldLinear(f.Result, hy), Contrasts: fit.Contrasts(f.Result, hy, level)})
 	}
 	if len(out) > 0 {
-		where := hypothesisHoldsAt(h.Text, or)
+		where, part := hypothesisHoldsAt(h.Text, or), partOfColumn(h.Text, or.Design)
 		for i := range out {
-			out[i].HoldsAt = where
+			out[i].HoldsAt, out[i].PartOfColumn = where, part
 		}
 	}
 	if len(out) == 0 {
@@ -490,6 +504,51 @@ func hypothesisHoldsAt(text string, or *OutcomeResult) string {
 	if dz == nil {
 		return ""
 	}
+	terms := hypothesisTerms(text, dz)
+	var at []string
+	ranges := or.fittedRanges()
+	for _, k := range terms {
+		if w := holdsAt(dz, k, ranges); w != "" {
+			at = append(at, dz.Terms[k].Name+": "+w)
+		}
+	}
+	if len(at) == 1 {
+		_, w, _ := strings.Cut(at[0], ": ")
+		return w
+	}
+	return strings.Join(at, "; ")
+}
+
+// partOfColumn lists the data columns of dz that make several terms
+// (interactions aside) of which the hypothesis names some and not all, in
+// the order of the columns; nil for none.
+func partOfColumn(text string, dz *design.Design) []ColumnTerms {
+	if dz == nil {
+		return nil
+	}
+	named := hypothesisTerms(text, dz)
+	var out []ColumnTerms
+	for s, src := range dz.Sources {
+		c := ColumnTerms{Column: src.Name}
+		for k, t := range dz.Terms {
+			if t.Kind == design.KindInteraction || t.Source != s {
+				continue
+			}
+			c.Terms = append(c.Terms, t.Name)
+			if slices.Contains(named, k) {
+				c.Named = append(c.Named, t.Name)
+			}
+		}
+		if len(c.Terms) > 1 && len(c.Named) > 0 && len(c.Named) < len(c.Terms) {
+			out = append(out, c)
+		}
+	}
+	return out
+}
+
+// hypothesisTerms are the terms of dz a hypothesis names, by a column, a
+// column's boundary, or as TERM = 0, in the order named.
+func hypothesisTerms(text string, dz *design.Design) []int {
 	var terms []int
 	add := func(k int) {
 		if k >= 0 && !slices.Contains(terms, k) {
@@ -509,16 +568,5 @@ func hypothesisHoldsAt(text string, or *OutcomeResult) string {
 			add(slices.IndexFunc(dz.Terms, func(t design.Term) bool { return slices.Contains(t.Columns, col) }))
 		}
 	}
-	var at []string
-	ranges := or.fittedRanges()
-	for _, k := range terms {
-		if w := holdsAt(dz, k, ranges); w != "" {
-			at = append(at, dz.Terms[k].Name+": "+w)
-		}
-	}
-	if len(at) == 1 {
-		_, w, _ := strings.Cut(at[0], ": ")
-		return w
-	}
-	return strings.Join(at, "; ")
+	return terms
 }

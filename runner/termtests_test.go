@@ -498,10 +498,24 @@ outcomes: [{column: y}]
 predictors: [exposure, {name: lexp, column: exposure, log: {}}]
 models: {approaches: [cumulative], effects: [parallel]}
 tests: {parallel_lines: []}
+inference:
+  hypotheses: ["exposure = 0", "exposure = 0; lexp = 0"]
 rules:
   - choose: {by: aic}
 `)
 	or := runPlan(t, p, 0).Outcomes[0]
+	// A hypothesis restricting one of the terms the column makes says
+	// so (the report points to the column's test); one restricting both
+	// is the column's test, whose Wald statistic glm's b' V^-1 b gives.
+	if len(or.Hypotheses) != 2 {
+		t.Fatalf("hypotheses: %+v", or.Hypotheses)
+	}
+	if pc := or.Hypotheses[0].PartOfColumn; len(pc) != 1 || pc[0].Column != "exposure" || strings.Join(pc[0].Terms, ",") != "exposure,lexp" || strings.Join(pc[0].Named, ",") != "exposure" {
+		t.Errorf("exposure = 0 beside lexp: part of column %+v", pc)
+	}
+	if pc := or.Hypotheses[1].PartOfColumn; pc != nil {
+		t.Errorf("both terms of the column restricted: part of column %+v", pc)
+	}
 	vals := rscript.Run(t, dir, "testdata/rcheck/columntest.R")
 	want := map[string]string{"exposure": "exposure", "lexp": "lexp", "column exposure": "column"}
 	if len(or.TermTests) != 3 {
@@ -515,6 +529,9 @@ rules:
 		agreesWithGlm(t, tt, name, vals)
 	}
 	col := or.TermTests[2]
+	if h := or.Hypotheses[1].Test; math.Abs(h.Chi2-col.Wald.Chi2) > 1e-9*col.Wald.Chi2 || h.DF != col.Wald.DF {
+		t.Errorf("hypothesis exposure = 0; lexp = 0: chi2(%d) = %g, the column's Wald test chi2(%d) = %g", h.DF, h.Chi2, col.Wald.DF, col.Wald.Chi2)
+	}
 	if col.Column == nil || *col.Column != "exposure" || strings.Join(col.With, ",") != "exposure,lexp" || strings.Join(col.Columns, ",") != "exposure,lexp" {
 		t.Errorf("the column's test is %+v", col)
 	}
