@@ -26,8 +26,8 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		switch set.Kind {
 		case "average":
 			d.h(3, "Average marginal effects")
-			d.p("How much the probability of each category changes with each predictor, averaged over the %d rows used%s with the other predictors as observed. For a 0/1 predictor (change \"0 to 1\") the effect is the difference between the probabilities with the predictor set to 1 and set to 0; for any other predictor (change \"per unit\") it is the derivative, the change per unit of the predictor. The effects of one predictor add up to zero over the categories. Standard errors by the delta method; intervals at %s, symmetric about the effect (the effect plus and minus a quantile times its standard error, since an effect, a change of a probability, can be negative).",
-				or.FitData.N(), weightedNote(or, sampling), pct(level))
+			d.p("How much the probability of each category changes with each predictor, averaged over the %d rows used%s with the other predictors as observed. For a numeric predictor that takes two values (change %s) the effect is the difference between the probabilities with the predictor set to the higher value and set to the lower; for any other numeric predictor (change %s) it is the derivative, the change per unit of the predictor. The effects of one predictor add up to zero over the categories. Standard errors by the delta method; intervals at %s, symmetric about the effect (the effect plus and minus a quantile times its standard error, since an effect, a change of a probability, can be negative).",
+				or.FitData.N(), weightedNote(or, sampling), changeWords(or, set, true), changeWords(or, set, false), pct(level))
 			if sampling {
 				d.p("%s", samplingAverageNote)
 			}
@@ -40,14 +40,14 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 			if or.Design != nil && slices.ContainsFunc(or.Design.Terms, func(t design.Term) bool { return t.Kind == design.KindCategorical }) {
 				at = "every numeric predictor at its mean and every categorical one at its reference level, not at its shares in the data"
 			}
-			d.p("The same effects at one point: %s (%s), a 0/1 predictor changed from 0 to 1 with the others at that point. Standard errors by the delta method; intervals at %s, symmetric about the effect (the effect plus and minus a quantile times its standard error, since an effect, a change of a probability, can be negative).%s", at, mdText(pointList(or, set.Point)), pct(level), categorical)
+			d.p("The same effects at one point: %s (%s), a numeric predictor that takes two values changed from the lower to the higher with the others at that point. Standard errors by the delta method; intervals at %s, symmetric about the effect (the effect plus and minus a quantile times its standard error, since an effect, a change of a probability, can be negative).%s", at, mdText(pointList(or, set.Point)), pct(level), categorical)
 			heldSharesNote(d, or, set, "effects")
 			if sampling {
 				d.p("%s", samplingMeansNote)
 			}
 		case "profile":
 			d.h(3, "Marginal effects at the plan's profile")
-			d.p("The effects at the point %s (predictors the plan's profile does not set are at their means, categorical ones at their reference level; a 0/1 predictor is changed from 0 to 1, any other numeric predictor differentiated, at that point). Standard errors by the delta method; intervals at %s, symmetric about the effect (the effect plus and minus a quantile times its standard error, since an effect, a change of a probability, can be negative).%s", mdText(pointList(or, set.Point)), pct(level), categorical)
+			d.p("The effects at the point %s (predictors the plan's profile does not set are at their means, categorical ones at their reference level; a numeric predictor that takes two values is changed from the lower to the higher, any other numeric predictor differentiated, at that point). Standard errors by the delta method; intervals at %s, symmetric about the effect (the effect plus and minus a quantile times its standard error, since an effect, a change of a probability, can be negative).%s", mdText(pointList(or, set.Point)), pct(level), categorical)
 			heldSharesNote(d, or, set, "effects")
 			profileOutsideNote(d, or, "effects")
 		}
@@ -71,13 +71,7 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		notEstimableEffects(d, or, set)
 		var rows [][]string
 		for e, me := range set.Effects {
-			change := "per unit"
-			if me.Discrete {
-				change = "0 to 1"
-			}
-			if me.Change != "" {
-				change = me.Change
-			}
+			change := effectChange(me)
 			row := []string{me.Predictor, change, me.Category, numfmt.Est(me.Effect), numfmt.Est(me.SE),
 				numfmt.Z(me.Z), numfmt.PValue(me.P), numfmt.Est(me.Low), numfmt.Est(me.High)}
 			if set.Pooling != nil {
@@ -87,6 +81,51 @@ func writeMarginalEffects(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 		}
 		d.table(head, rows)
 	}
+}
+
+// effectChange is the change a marginal effect's row names: its own
+// (runner.sourceEffects: "0 to 1", "1 to 2", "per unit (years)", "north
+// to east"), or, from a record without one, "0 to 1" or "per unit".
+func effectChange(me fit.MarginalEffect) string {
+	switch {
+	case me.Change != "":
+		return me.Change
+	case me.Discrete:
+		return "0 to 1"
+	}
+	return "per unit"
+}
+
+// changeWords quotes, for the paragraph above the effects, the changes
+// the rows of set name for numeric predictors that take two values
+// (discrete) or for the others (per unit), as the rows write them
+// (effectChange), each once: "\"0 to 1\"", "\"per unit\" or \"per
+// unit (years)\"" (a unit from the data dictionary); the usual words
+// when no row has such a change.
+func changeWords(or *runner.OutcomeResult, set runner.MarginalSet, discrete bool) string {
+	var seen []string
+	for _, me := range set.Effects {
+		if c := effectChange(me); me.Discrete == discrete && !slices.Contains(seen, c) && !categoricalSource(or, me.Predictor) {
+			seen = append(seen, c)
+		}
+	}
+	if len(seen) == 0 {
+		seen = []string{"per unit"}
+		if discrete {
+			seen = []string{"0 to 1"}
+		}
+	}
+	return mdText(words.OrList(words.Each(seen, func(c string) string { return `"` + c + `"` })))
+}
+
+// categoricalSource reports whether the outcome's design reads column
+// name as a categorical predictor.
+func categoricalSource(or *runner.OutcomeResult, name string) bool {
+	if or.Design == nil {
+		return false
+	}
+	s := or.Design.Source(name)
+	return s >= 0 && or.Design.Sources[s].Cat != nil
 }
 
 // notEstimableEffects says, above a table of marginal effects some of

@@ -243,8 +243,9 @@ func readNewRows(an *Analysis, or *OutcomeResult) (*NewRows, error) {
 // sourceEffects gives the marginal effects of every source variable (raw
 // column) of the outcome's design, averaged over the raw rows given (n x
 // S): for a categorical column the discrete change from its reference to
-// each coded level; for a numeric column taking only 0 and 1 in the data
-// the change from 0 to 1; for any other numeric column the derivative,
+// each coded level; for a numeric column taking two values in the data
+// (0 and 1, 1 and 2: valuePair) the change from the lower to the higher;
+// for any other numeric column the derivative,
 // pushed through every design column the variable enters (transformation,
 // polynomial, spline, interaction).
 func sourceEffects(or *OutcomeResult, res *fit.Result, raw []float64, n int, off, w []float64, level float64) ([]fit.MarginalEffect, []string, error) {
@@ -253,8 +254,8 @@ func sourceEffects(or *OutcomeResult, res *fit.Result, raw []float64, n int, off
 	var out []fit.MarginalEffect
 	var notes []string
 	for s, src := range dz.Sources {
-		if src.Cat != nil || or.binarySource(s) {
-			from, tos, labels := 0.0, []float64{1}, []string{"0 to 1"}
+		if pair := or.sourceValues(s); src.Cat != nil || pair.Two() {
+			from, tos, labels := pair.v[0], []float64{pair.v[1]}, []string{pair.change()}
 			if src.Cat != nil {
 				kept, ref := dz.Coded(s)
 				from, tos, labels = float64(dz.Level(s, ref)), nil, nil
@@ -315,8 +316,14 @@ func sourceEffects(or *OutcomeResult, res *fit.Result, raw []float64, n int, off
 	return out, notes, nil
 }
 
-// binarySource reports whether numeric source s takes only 0 and 1.
-func (or *OutcomeResult) binarySource(s int) bool { return binarySource(or.Design, or.Data, s) }
+// sourceValues is the values numeric source s takes, when at most two
+// (valuePair; categorical sources are read by their levels).
+func (or *OutcomeResult) sourceValues(s int) valuePair {
+	if or.Design.Sources[s].Cat != nil {
+		return valuePair{n: 3}
+	}
+	return sourceValues(or.Design, or.Data, s)
+}
 
 // representative is one raw row: numeric columns at their (weighted)
 // means over the rows used (usedRows: on imputed data the rows of every

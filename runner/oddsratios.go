@@ -86,14 +86,15 @@ func (c *SingleChecks) AddOddsRatios(r *fit.Result, level float64) {
 	}
 }
 
-// plainReadings reads plain numeric columns: 1 against 0 for a column
-// that takes only those values (binary[i]), per unit otherwise.
-func plainReadings(columns []string, binary []bool) []ColumnReading {
+// plainReadings reads plain numeric columns: 1 against 0 (2 against 1)
+// for a column that takes only those values (values[i], valuePair), per
+// unit otherwise.
+func plainReadings(columns []string, values []valuePair) []ColumnReading {
 	out := make([]ColumnReading, len(columns))
 	for i, c := range columns {
 		out[i] = ColumnReading{Column: c, Term: c, Change: "per unit of " + c, Alone: true}
-		if binary[i] {
-			out[i].Change, out[i].named = "1 against 0", true
+		if values[i].oneApart() {
+			out[i].Change, out[i].named = values[i].against(), true
 		}
 	}
 	return out

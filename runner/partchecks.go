@@ -44,10 +44,7 @@ func PartitionedChecks(s SingleFit, res *fit.Result, parts []string, whole fit.W
 		}
 	}
 	var spread fit.EtaSpread
-	binary := make([]bool, len(res.Predictors)) // the columns are plain (Partitioned)
-	for k := range binary {
-		binary[k] = true
-	}
+	values := make([]valuePair, len(res.Predictors)) // the columns are plain (Partitioned)
 	part, err := dopt.CodedAs(whole.Categories)
 	if err != nil {
 		return nil, err
@@ -69,7 +66,11 @@ func PartitionedChecks(s SingleFit, res *fit.Result, parts []string, whole fit.W
 		P := len(ds.Predictors)
 		for k, name := range res.Predictors {
 			c := slices.Index(ds.Predictors, name)
-			binary[k] = binary[k] && c >= 0 && zeroOne(ds.X, P, c)
+			if c < 0 {
+				values[k].n = 3
+				continue
+			}
+			values[k].merge(columnValues(ds.X, P, c))
 		}
 	}
 	if rows != nil {
@@ -82,7 +83,7 @@ func PartitionedChecks(s SingleFit, res *fit.Result, parts []string, whole fit.W
 		Overall:      OverallRecord{Model: res.Name, Null: fit.ModelID(res.Model.ComparisonName(), "thresholds-only", res.Model.Link), Overall: o},
 		Lipsitz:      lz,
 		PatternSplit: &PatternSplitRecord{Predictors: []string{}, NotComputed: noCategorical},
-		Readings:     plainReadings(res.Predictors, binary),
+		Readings:     plainReadings(res.Predictors, values),
 	}, nil
 }
 

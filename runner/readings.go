@@ -56,7 +56,7 @@ func (or *OutcomeResult) ColumnReadings() []ColumnReading {
 }
 
 // columnReadings gives the reading of every column of design dz, whose raw
-// columns are those of raw (nil: no column is read as 1 against 0), where
+// columns are those of raw (nil: no column is read as 1 against 0, valuePair), where
 // a slope holds judged against the ranges of the rows of ref (the rows
 // fitted; their observed values on imputed data); without a design, fd's
 // columns are plain numeric columns.
@@ -65,7 +65,7 @@ func columnReadings(dz *design.Design, raw *data.Dataset, fd *fit.Data, ref *dat
 		if fd == nil {
 			return nil
 		}
-		return plainReadings(fd.Predictors, zeroOneColumns(fd))
+		return plainReadings(fd.Predictors, columnPairs(fd))
 	}
 	per := make([][]ColumnReading, len(dz.Terms)) // the columns of each term, without Where
 	for k := range dz.Terms {
@@ -183,37 +183,98 @@ func termReadings(dz *design.Design, raw *data.Dataset, k int, per [][]ColumnRea
 	switch {
 	case tr.Scale && !math.IsNaN(t.SD):
 		r.Change = fmt.Sprintf("per SD (%s) of %s", strconv.FormatFloat(t.SD, 'g', 6, 64), expr)
-	case !tr.Log && !tr.Sqrt && raw != nil && binarySource(dz, raw, t.Source):
-		r.Change, r.named = "1 against 0", true
+	case !tr.Log && !tr.Sqrt && raw != nil:
+		if p := sourceValues(dz, raw, t.Source); p.oneApart() {
+			r.Change, r.named = p.against(), true
+		}
 	}
 	return []ColumnReading{r}
 }
 
-// binarySource reports whether numeric source s of design dz takes only 0
-// and 1 in the raw rows.
-func binarySource(dz *design.Design, raw *data.Dataset, s int) bool {
-	return zeroOne(raw.X, len(dz.Sources), s)
+// sourceValues is the values numeric source s of design dz takes in the
+// raw rows, when at most two (valuePair).
+func sourceValues(dz *design.Design, raw *data.Dataset, s int) valuePair {
+	return columnValues(raw.X, len(dz.Sources), s)
 }
 
-// zeroOne reports whether column c of the row-major rows x, of width
-// columns, takes only 0 and 1: the one rule by which a numeric column's
-// odds ratio reads "1 against 0" (whole data, a fit without a design, and
-// parts, where every part must pass).
-func zeroOne(x []float64, width, c int) bool {
-	for i := c; i < len(x); i += width {
-		if v := x[i]; v != 0 && v != 1 {
-			return false
+// valuePair is what the two-values rule knows of a numeric column: the
+// distinct values it takes (n of them, 3 meaning more than two) and, for
+// at most two, which, lowest first. The one rule by which a numeric
+// column that takes two values is read as a change from the lower value
+// to the higher (a marginal effect "1 to 2", a discrete change) rather
+// than per unit (a derivative), and its odds ratio as "2 against 1" when
+// the values are one unit apart, as a 0/1 column reads "1 against 0"
+// (whole data, a fit without a design, and parts, whose values are
+// merged).
+type valuePair struct {
+	n int
+	v [2]float64
+}
+
+// add counts value x.
+func (p *valuePair) add(x float64) {
+	switch {
+	case p.n >= 3 || p.n >= 1 && x == p.v[0] || p.n == 2 && x == p.v[1]:
+	case p.n == 2:
+		p.n = 3
+	case p.n == 1:
+		p.v[1], p.n = x, 2
+		if p.v[1] < p.v[0] {
+			p.v[0], p.v[1] = p.v[1], p.v[0]
 		}
+	default:
+		p.v[0], p.n = x, 1
 	}
-	return true
 }
 
-// zeroOneColumns applies zeroOne to every column of fd's rows.
-func zeroOneColumns(fd *fit.Data) []bool {
+// merge adds the values of q (another part's).
+func (p *valuePair) merge(q valuePair) {
+	if q.n >= 3 {
+		p.n = 3
+		return
+	}
+	for i := 0; i < q.n; i++ {
+		p.add(q.v[i])
+	}
+}
+
+// Two reports whether the column takes exactly two values.
+func (p valuePair) Two() bool { return p.n == 2 }
+
+// oneApart reports whether the column takes two values one unit apart,
+// whose odds ratio reads "higher against lower" (against).
+func (p valuePair) oneApart() bool { return p.n == 2 && p.v[1]-p.v[0] == 1 }
+
+// change names the change from the lower value to the higher: "0 to 1",
+// "1 to 2" (a marginal effect's).
+func (p valuePair) change() string { return p.text(0) + " to " + p.text(1) }
+
+// against names the odds ratio of the higher value against the lower:
+// "1 against 0", "2 against 1".
+func (p valuePair) against() string { return p.text(1) + " against " + p.text(0) }
+
+func (p valuePair) text(i int) string { return strconv.FormatFloat(p.v[i], 'g', -1, 64) }
+
+// columnValues is the valuePair of column c of the row-major rows x, of
+// width columns.
+func columnValues(x []float64, width, c int) valuePair {
+	var p valuePair
+	for i := c; i < len(x) && p.n < 3; i += width {
+		p.add(x[i])
+	}
+	return p
+}
+
+// columnPairs applies columnValues to every column of fd's rows.
+func columnPairs(fd *fit.Data) []valuePair {
 	K := len(fd.Predictors)
-	out := make([]bool, K)
+	out := make([]valuePair, K)
 	for k := range out {
-		out[k] = len(fd.X) == fd.N()*K && zeroOne(fd.X, K, k)
+		if len(fd.X) == fd.N()*K {
+			out[k] = columnValues(fd.X, K, k)
+		} else {
+			out[k].n = 3
+		}
 	}
 	return out
 }

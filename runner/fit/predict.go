@@ -269,7 +269,7 @@ func quadForm(g, V []float64) float64 {
 type MarginalEffect struct {
 	Predictor string  `json:"predictor"`
 	Category  string  `json:"category"`
-	Discrete  bool    `json:"discrete"`         // change from 0 to 1 (0/1 predictor) instead of a derivative
+	Discrete  bool    `json:"discrete"`         // a change between two values (a level, the two values of a numeric column) instead of a derivative
 	Change    string  `json:"change,omitempty"` // "per unit", "0 to 1", or "reference to level" for a categorical predictor
 	Effect    float64 `json:"effect"`
 	SE        float64 `json:"se"`
