@@ -589,6 +589,18 @@ func (a *Analysis) observedIn(r Reading, ds *data.Dataset, in string) error {
 		return fmt.Errorf("%s: %s: category %q is declared but never observed in %s: %s. If these are the rows meant, remove it from %s or merge it with a neighbour",
 			a.Source, r.Key, ds.Unobserved[0], rows, why, r.CategoriesKey)
 	}
+	if in == "" && ds.RowsDropped > 0 {
+		// Its rows all dropped, fewer than those kept: say for what, as
+		// for a declared level of a predictor (designRefusal).
+		var keys func([]data.DropCount) []string
+		if a.Plan {
+			keys = r.lossKeys
+		}
+		if why := data.LevelDrops(a.Paths(), r.Options, ds.Outcome, ds.Unobserved[0], keys); why != "" {
+			return fmt.Errorf("%s: %s: category %q is declared but never observed in %s. %s. If these are the rows meant, remove it from %s or merge it with a neighbour",
+				a.Source, r.Key, ds.Unobserved[0], rows, why, r.CategoriesKey)
+		}
+	}
 	return fmt.Errorf("%s: %s: category %q is declared but never observed in %s; remove it from %s or merge it with a neighbour",
 		a.Source, r.Key, ds.Unobserved[0], rows, r.CategoriesKey)
 }

@@ -1614,6 +1614,35 @@ func catalogue(dir string) (items []badInput) {
 				if code != 1 || !strings.Contains(e, want) {
 					t.Errorf("check (impute): exit %d, want %q in\n%s", code, want, e)
 				}
+				// A declared category whose rows the subset on another
+				// column leaves out, or that weigh 0, fewer rows than those
+				// kept: the refusal says for what, as T6 for a level.
+				n3 := 0
+				withColumns(t, dir, "D9sub.csv", "region,wt", func(i int, f []string) string {
+					if f[0] == "3" {
+						n3++
+						return "b,0"
+					}
+					return "a,1"
+				})
+				for _, c := range []struct{ name, edit, why string }{
+					{"subset", "predictors:", fmt.Sprintf("the subset (outside the subset region in {a}: %d; plan key subset[0])", n3)},
+					{"weights", "  file: d.csv\n", fmt.Sprintf("zero weight (wt = 0: %d; plan key data.weights)", n3)},
+				} {
+					body := edit("column: y", "column: y\n    categories: [\"1\", \"2\", \"3\"]", "  file: d.csv\n", "  file: D9sub.csv\n")
+					if c.name == "subset" {
+						body = strings.Replace(body, "predictors:", "subset:\n  - {column: region, one_of: [a]}\npredictors:", 1)
+					} else {
+						body = strings.Replace(body, "  file: D9sub.csv\n", "  file: D9sub.csv\n  weights: wt\n", 1)
+					}
+					pl := filepath.Join(dir, "D9"+c.name+".yaml")
+					os.WriteFile(pl, []byte(body), 0o644)
+					_, e, code := runCLI("check", pl)
+					want := fmt.Sprintf(`outcomes: y: category "3" is declared but never observed in the %d rows used. It occurs in %d rows of the data, each dropped for %s. If these are the rows meant, remove it from categories or merge it with a neighbour`, 120-n3, n3, c.why)
+					if code != 1 || !strings.Contains(e, want) {
+						t.Errorf("check, category 3 lost to %s: exit %d, want %q in\n%s", c.name, code, want, e)
+					}
+				}
 			}},
 		{id: "D10", name: "value that is not a declared category", args: fitArgs(d("labels.csv"), "--categories", "low,high", "--predictors", "a,b"), code: 1,
 			want: []string{`labels.csv:3: column "y": value "medium" is not one of the declared categories: "low", "high"`}},

@@ -299,8 +299,8 @@ func dropList(dc []DropCount) string {
 }
 
 // LevelDrops reads the data (paths, opt) for the rows whose cell of the
-// categorical predictor column col is level, and says why none of them
-// is used: "It occurs in 20 rows of the data, each dropped for the
+// categorical predictor column col is level (or, col the outcome, whose
+// declared category it is), and says why none of them is used: "It occurs in 20 rows of the data, each dropped for the
 // subset (outside the subset region in {a}: 20)", the reasons and the
 // counts by column as the data's count of dropped rows gives them
 // (DropReasons, under the first reason that applies: the subset, a

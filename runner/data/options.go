@@ -76,8 +76,9 @@ type Options struct {
 	// (Dataset.FewRowsSentence); nil outside a plan.
 	Entries map[string][]Entry `json:"-"`
 	// OnlyLevel, when set, reads only the rows whose cell of a
-	// categorical predictor column is the given level (LevelDrops): the
-	// other rows are counted as read and nothing more.
+	// categorical predictor column is the given level, or of the outcome
+	// its declared category (LevelDrops): the other rows are counted as
+	// read and nothing more.
 	OnlyLevel *LevelRef `json:"-"`
 }
 

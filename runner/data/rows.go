@@ -360,16 +360,24 @@ func (r *reader) outsideSubset(t *rowTally, rec []string) (int, error) {
 }
 
 // ofLevel reports whether a record's cell of the column of
-// Options.OnlyLevel is its level (as parseRow reads a level).
+// Options.OnlyLevel is its level (as parseRow reads a level), or, for the
+// outcome column, its declared category.
 func (r *reader) ofLevel(t *rowTally, rec []string) bool {
 	lr := r.opt.OnlyLevel
 	for _, c := range r.cols {
-		if c.role != rolePredictor || c.name != lr.Column {
+		if c.name != lr.Column || c.role != rolePredictor && c.role != roleOutcome {
 			continue
 		}
-		idx, cat := t.levelIndex[c.name]
 		cell := strings.TrimSpace(rec[c.index])
-		if !cat || r.missingIn(c.name, cell) {
+		if r.missingIn(c.name, cell) {
+			return false
+		}
+		if c.role == roleOutcome {
+			i, ok := declaredCategory(t.labels, cell, r.opt.Dialect.mark())
+			return len(r.opt.Categories) > 0 && ok && i == slices.Index(r.opt.Categories, lr.Level)
+		}
+		idx, cat := t.levelIndex[c.name]
+		if !cat {
 			return false
 		}
 		l, ok := lookupText(idx, cell)
