@@ -26,7 +26,7 @@ func TestHypothesisPartOfColumn(t *testing.T) {
 	}
 	or.TermTests = []runner.TermTest{{Term: "x"}, {Term: "x.log"}, {Term: runner.ColumnLabel("x"), Wald: fit.Test{}}}
 	got = partsOfColumns(or)
-	if len(got) != 1 || !strings.HasSuffix(got[0], " For that, read the row column x of the tests of each term, which tests every term reading the column together, or write the hypothesis as `x = 0; x.log = 0`.") {
+	if len(got) != 1 || !strings.HasSuffix(got[0], " For that, read the row \"column x\" of the tests of each term, which tests every term reading the column together, or write the hypothesis as `x = 0; x.log = 0`.") {
 		t.Errorf("with term tests: %q", got)
 	}
 	// Two named of three, names that Markdown would read.

@@ -66,7 +66,7 @@ func partOfColumnSentence(or *runner.OutcomeResult, text string, c runner.Column
 		mdCode(text), term, named, mdText(c.Column), words.AndList(others), named, adds, words.AndList(others), verb, mdText(c.Column))
 	label := runner.ColumnLabel(c.Column)
 	if slices.ContainsFunc(or.TermTests, func(t runner.TermTest) bool { return t.Term == label }) {
-		return s + fmt.Sprintf(" For that, read the row %s of the tests of each term, which tests every term reading the column together, or write the hypothesis as %s.", mdText(label), mdCode(strings.Join(whole, "; ")))
+		return s + fmt.Sprintf(" For that, read the row \"%s\" of the tests of each term, which tests every term reading the column together, or write the hypothesis as %s.", mdText(label), mdCode(strings.Join(whole, "; ")))
 	}
 	return s + fmt.Sprintf(" For that, write the hypothesis as %s.", mdCode(strings.Join(whole, "; ")))
 }
