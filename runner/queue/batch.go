@@ -149,8 +149,12 @@ func (c *Client) runBatch(ctx context.Context, id string, tasks []*Task, h batch
 		case errors.Is(err, errNotice):
 			waited += noticeAfter
 			missing := b.missing()
+			workers := b.notes.refusing()
+			if workers == "" {
+				workers = c.workersNow(ctx)
+			}
 			c.logf("queue: waiting for %d of %d jobs (the first: %s): no reply for %s; %s; the missing jobs are published again when %s pass without a reply (--job-deadline)",
-				len(missing), len(tasks), tasks[missing[0]].label(), waited, c.workersNow(ctx), deadline)
+				len(missing), len(tasks), tasks[missing[0]].label(), waited, workers, deadline)
 			noticeAfter *= 2 // 1, 2, 4, ... minutes: said, not repeated at length
 			notice.Reset(noticeAfter)
 			continue

@@ -271,6 +271,28 @@ func (bn *batchNotes) take(h heard) {
 	}
 }
 
+// refusing says, while the batch's jobs are being refused with no word
+// from a worker holding the coordinator's secret, who refuses them and
+// when the run stops for it; "" otherwise.
+func (bn *batchNotes) refusing() string {
+	bn.mu.Lock()
+	defer bn.mu.Unlock()
+	if bn.since.IsZero() {
+		return ""
+	}
+	return fmt.Sprintf("only workers whose secret differs from this coordinator's take them, and refuse them: %s; no worker with this coordinator's secret has been heard from since %s, and the run stops if none is by %s",
+		bn.refusers(), bn.since.Format("15:04:05"), bn.since.Add(bn.wait).Format("15:04:05"))
+}
+
+// refusers lists the workers that refused jobs, with their refusals.
+func (bn *batchNotes) refusers() string {
+	who := make([]string, len(bn.order))
+	for k, w := range bn.order {
+		who[k] = fmt.Sprintf("%s (%s)", w, words.Count(bn.refused[w], "refusal", "refusals"))
+	}
+	return strings.Join(who, ", ")
+}
+
 // check says which workers stopped sending progress (silent for two and a
 // half of their intervals), and returns an error when jobs were refused
 // and no worker with this coordinator's secret was heard from for the
@@ -293,10 +315,6 @@ func (bn *batchNotes) check(ctx context.Context, now time.Time) error {
 	if bn.since.IsZero() || now.Sub(bn.since) < bn.wait {
 		return nil
 	}
-	who := make([]string, len(bn.order))
-	for k, w := range bn.order {
-		who[k] = fmt.Sprintf("%s (%s)", w, words.Count(bn.refused[w], "refusal", "refusals"))
-	}
 	removed := "its jobs were removed from the queue"
 	pctx, cancel := context.WithTimeout(context.WithoutCancel(ctx), 10*time.Second)
 	defer cancel()
@@ -304,5 +322,5 @@ func (bn *batchNotes) check(ctx context.Context, now time.Time) error {
 		removed = fmt.Sprintf("its jobs could not be removed from the queue (%v)", err)
 	}
 	return fmt.Errorf("only workers that refuse this run's jobs took them for %s: %s, whose secret differs from this coordinator's (or which run another version of ordplan), and no worker with this coordinator's secret was heard from: give those workers the coordinator's secret file (--queue-secret-file) and version, or start one that has them, then run again (the results already made are reused); %s",
-		bn.wait, strings.Join(who, ", "), removed)
+		bn.wait, bn.refusers(), removed)
 }

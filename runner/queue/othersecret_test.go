@@ -2,6 +2,7 @@ package queue
 
 import (
 	"context"
+	"regexp"
 	"strings"
 	"testing"
 	"time"
@@ -88,11 +89,17 @@ func TestWorkerWithAnotherSecretLeavesJobs(t *testing.T) {
 func TestOnlyRefusingWorkersEndTheRun(t *testing.T) {
 	q := newTestQueue(t, 60*time.Second, fit.ParallelEffects)
 	otherSecretWorker(t, q.url, "wrong")
-	q.c.RefusedWait = time.Second
+	q.c.RefusedWait, q.c.WaitNotice = 2*time.Second, time.Second
 	clog := &LogBuffer{}
 	co := q.coordinator(t, clog)
 	_, errs := co.Execute(q.jobs)
-	want := "only workers that refuse this run's jobs took them for 1s: wrong ("
+	// The wait notice (Q21) says who refuses the jobs, not what the
+	// workers' consumer shows.
+	notice := regexp.MustCompile(`queue: waiting for 1 of 1 jobs \(the first: cumulative/parallel/logit\): no reply for 1s; only workers whose secret differs from this coordinator's take them, and refuse them: wrong \([0-9]+ refusals?\); no worker with this coordinator's secret has been heard from since [0-9:]{8}, and the run stops if none is by [0-9:]{8}; the missing jobs`)
+	if !notice.MatchString(clog.String()) {
+		t.Errorf("the wait notice does not say who refuses the jobs:\n%s", clog)
+	}
+	want := "only workers that refuse this run's jobs took them for 2s: wrong ("
 	if errs[0] == nil || !strings.Contains(errs[0].Error(), want) ||
 		!strings.Contains(errs[0].Error(), "refusals), whose secret differs from this coordinator's (or which run another version of ordplan), and no worker with this coordinator's secret was heard from: give those workers the coordinator's secret file (--queue-secret-file) and version, or start one that has them, then run again (the results already made are reused); its jobs were removed from the queue") {
 		t.Fatalf("got %v, want %q", errs[0], want)
