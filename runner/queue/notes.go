@@ -157,6 +157,11 @@ type batchNotes struct {
 	order   []string       // workers in the order they first refused
 	since   time.Time      // first refusal since word from a worker with the secret
 	wait    time.Duration
+	// connected tells whether the coordinator's own connection is up;
+	// offline is set while it was seen down: workers are not heard then,
+	// and their silence is not theirs.
+	connected func() bool
+	offline   bool
 }
 
 // follow subscribes to every note (a sealed one of any batch shows a
@@ -166,7 +171,7 @@ type batchNotes struct {
 // dropped, never waited for.
 func (c *Client) follow(ctx context.Context, id string, tasks []*Task, cancel context.CancelCauseFunc) (*batchNotes, error) {
 	bn := &batchNotes{c: c, id: id, tasks: tasks, ch: make(chan heard, 256), quit: make(chan struct{}), ended: make(chan struct{}),
-		done: map[int]bool{}, holds: map[int]*holding{}, refused: map[string]int{}, wait: c.RefusedWait}
+		done: map[int]bool{}, holds: map[int]*holding{}, refused: map[string]int{}, wait: c.RefusedWait, connected: c.nc.IsConnected}
 	if bn.wait <= 0 {
 		bn.wait = DefaultRefusedWait
 	}
@@ -296,8 +301,24 @@ func (bn *batchNotes) refusers() string {
 // check says which workers stopped sending progress (silent for two and a
 // half of their intervals), and returns an error when jobs were refused
 // and no worker with this coordinator's secret was heard from for the
-// refused wait.
+// refused wait; while the coordinator's own connection is down it says
+// nothing, and counts both anew from its return.
 func (bn *batchNotes) check(ctx context.Context, now time.Time) error {
+	if !bn.connected() {
+		bn.offline = true // the connection's loss is said (connectionLog)
+		return nil
+	}
+	if bn.offline {
+		// Back: the workers' silence is counted from now, as is the
+		// wait for one with the secret.
+		bn.offline = false
+		for _, hd := range bn.holds {
+			hd.last = now
+		}
+		if !bn.since.IsZero() {
+			bn.since = now
+		}
+	}
 	idx := make([]int, 0, len(bn.holds))
 	for i := range bn.holds {
 		idx = append(idx, i)

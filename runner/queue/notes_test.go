@@ -76,3 +76,43 @@ func TestCoordinatorSaysWhenAWorkerFallsSilent(t *testing.T) {
 		t.Errorf("the silence was said after the job went to another worker:\n%s", log)
 	}
 }
+
+// While the coordinator's own connection is down, the workers' silence is
+// not said (nor counted against the wait for a worker with the secret):
+// it is the coordinator that is cut off. Counted again from its return.
+// It said every worker holding a job had stopped sending progress.
+func TestNoSilenceSaidWhileTheCoordinatorIsCutOff(t *testing.T) {
+	log := &LogBuffer{}
+	up := true
+	bn := &batchNotes{c: &Client{Log: log}, id: "b", tasks: []*Task{{Batch: "b", Index: 0, ID: "cumulative/parallel/logit"}},
+		done: map[int]bool{}, holds: map[int]*holding{}, refused: map[string]int{}, wait: time.Minute, connected: func() bool { return up }}
+	t0 := time.Date(2026, 1, 2, 3, 4, 5, 0, time.UTC)
+	bn.take(heard{subject: NoteSubject + ".b.0", sealed: true, at: t0, note: note{Worker: "w1", Kind: noteProgress, Delivery: 1, EveryMS: 2000, AckMS: 30000}})
+	bn.take(heard{subject: NoteSubject + ".b.0", at: t0, note: note{Worker: "wrong", Kind: noteRefused}})
+	up = false
+	for _, s := range []time.Duration{3, 10, 90} {
+		if err := bn.check(context.Background(), t0.Add(s*time.Second)); err != nil {
+			t.Fatal(err)
+		}
+	}
+	up = true
+	back := t0.Add(100 * time.Second)
+	for _, s := range []time.Duration{0, 4} {
+		if err := bn.check(context.Background(), back.Add(s*time.Second)); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if strings.Contains(log.String(), "stopped sending progress") {
+		t.Fatalf("a silence said while the coordinator was cut off, or just back:\n%s", log)
+	}
+	if err := bn.check(context.Background(), back.Add(5*time.Second+time.Millisecond)); err != nil {
+		t.Fatal(err)
+	}
+	want := "queue: worker w1 stopped sending progress on job cumulative/parallel/logit at 03:05:45 ("
+	if !strings.Contains(log.String(), want) {
+		t.Errorf("log:\n%s\nwant %q", log, want)
+	}
+	if !bn.since.Equal(back) {
+		t.Errorf("the wait for a worker with the secret counted from %s, not from the return %s", bn.since, back)
+	}
+}
