@@ -247,14 +247,28 @@ func formulaHint(cell, ref string) string {
 			ref += " "
 		}
 		return "; the cell " + ref + "holds a formula without its value (the workbook was saved by a program that does not compute formulas): open the workbook in a spreadsheet program that computes formulas and save it, or export the sheet's values as CSV"
-	case strings.HasPrefix(cell, "(merged cells ") && strings.HasSuffix(cell, ")"):
-		ref := strings.TrimSuffix(strings.TrimPrefix(cell, "(merged cells "), ")")
-		first, _, _ := strings.Cut(ref, ":")
-		return "; the cell is one of the merged cells " + ref + ", whose one value, held by " + first + ", the sheet shows across them all: unmerge them and write each row's value in its own cell"
+	case mergedRange(cell) != "":
+		return "; the cell is " + mergedWords(mergedRange(cell))
 	case spreadsheetErrors[cell]:
 		return "; it is a spreadsheet's error value: correct the formula that gave it, or list " + quoteCell(cell) + " among the missing-value markers (data.missing_values)"
 	}
 	return ""
+}
+
+// mergedRange is the range (C2:C4) of the merged cells a cell's text
+// says it is covered by (mergedText), "" for any other text.
+func mergedRange(cell string) string {
+	if !strings.HasPrefix(cell, "(merged cells ") || !strings.HasSuffix(cell, ")") {
+		return ""
+	}
+	return strings.TrimSuffix(strings.TrimPrefix(cell, "(merged cells "), ")")
+}
+
+// mergedWords says of a cell covered by the merged cells rng (C2:C4),
+// other than the one holding their value, what it is and what to do.
+func mergedWords(rng string) string {
+	first, _, _ := strings.Cut(rng, ":")
+	return "one of the merged cells " + rng + ", whose one value, held by " + first + ", the sheet shows across them all: unmerge them and write each row's value in its own cell"
 }
 
 // spreadsheetErrors are the error values a spreadsheet cell can hold.

@@ -61,6 +61,8 @@ type sheetRecords struct {
 	// merged are the sheet's merged ranges, for the messages about a
 	// header cell they cover (coveredHeader)
 	merged []excelize.MergeCell
+	// used are the used columns, once found (markHidden)
+	used []usedCol
 }
 
 // coveredHeader says, of the header row's cell of field (0-based), that
@@ -502,6 +504,11 @@ func (s *sheetRecords) Read() ([]string, error) {
 		for len(rec) < s.width {
 			rec = append(rec, "")
 		}
+		if len(s.merged) > 0 {
+			if e := s.mergedUsed(rec); e != nil {
+				return rec, e
+			}
+		}
 		return rec, nil
 	}
 	return nil, io.EOF
@@ -654,9 +661,31 @@ func hiddenColumns(f *excelize.File, sheet string, width int) map[int]bool {
 	return out
 }
 
+// mergedUsed refuses a record of the current row whose cell in a used
+// column (the first by column) is covered by merged cells but for the
+// one holding their value (markMerged): the sheet shows their one value
+// there, but the row holds none, and read as a text of its own it would
+// be a level, a category, a cluster or a subset's value apart from the
+// value shown (a cluster per merged block beside the first row's).
+func (s *sheetRecords) mergedUsed(rec []string) *Error {
+	var hit *usedCol
+	for i, c := range s.used {
+		if c.index < len(rec) && mergedRange(rec[c.index]) != "" && (hit == nil || c.index < hit.index) {
+			hit = &s.used[i]
+		}
+	}
+	if hit == nil {
+		return nil
+	}
+	ref, _ := excelize.CoordinatesToCellName(s.lead+hit.index+1, s.line)
+	return &Error{Line: s.line, Column: hit.name, Msg: "cell " + ref + " is " + mergedWords(mergedRange(rec[hit.index]))}
+}
+
 // markHidden names, in SheetRead.HiddenColumns, the used columns the
-// sheet hides from view, in the sheet's order.
+// sheet hides from view, in the sheet's order; the used columns are kept
+// for mergedUsed.
 func (s *sheetRecords) markHidden(cols []usedCol) {
+	s.used = cols
 	s.read.HiddenColumns = nil
 	if len(s.hiddenCols) == 0 {
 		return

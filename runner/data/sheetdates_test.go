@@ -189,10 +189,18 @@ func withBookXML(t *testing.T, raw []byte, old, new string) []byte {
 func TestWorkbookMergedCells(t *testing.T) {
 	b := mergedBook(t)
 	opt := Options{Outcome: "y", Predictors: []string{"a", "g"}, PredictorLevels: map[string][]string{"g": {"ctl", "trt"}}, Dialect: Dialect{Sheet: "s"}}
-	_, err := readBytes(b, "m.xlsx", opt)
-	want := `m.xlsx:3: column "g": value "(merged cells C2:C4)" is not one of the declared levels of this categorical predictor: "ctl", "trt"; the cell is one of the merged cells C2:C4, whose one value, held by C2, the sheet shows across them all: unmerge them`
-	if err == nil || !strings.Contains(err.Error(), want) {
-		t.Errorf("merged cells in a used column: %v\nwant %s", err, want)
+	want := `m.xlsx:3: column "g": cell C3 is one of the merged cells C2:C4, whose one value, held by C2, the sheet shows across them all: unmerge them and write each row's value in its own cell`
+	// As a level, as a cluster and as a subset's column alike, also when
+	// the plan declares the text read there as a level (it was then a
+	// level, or a cluster, of its own, and a subset left the rows out).
+	for name, o := range map[string]Options{
+		"level":          opt,
+		"declared level": {Outcome: "y", Predictors: []string{"a", "g"}, PredictorLevels: map[string][]string{"g": {"ctl", "trt", "(merged cells C2:C4)"}}, Dialect: Dialect{Sheet: "s"}},
+		"cluster":        {Outcome: "y", Predictors: []string{"a"}, Cluster: "g", Dialect: Dialect{Sheet: "s"}},
+	} {
+		if _, err := readBytes(b, "m.xlsx", o); err == nil || !strings.Contains(err.Error(), want) {
+			t.Errorf("merged cells in a used column (%s): %v\nwant %s", name, err, want)
+		}
 	}
 	d, err := readBytes(b, "m.xlsx", Options{Outcome: "y", Predictors: []string{"a"}, Dialect: Dialect{Sheet: "s"}})
 	if err != nil || d.N != 5 || d.RowsRead != 5 {
