@@ -46,6 +46,12 @@ func KindOf(p data.Profile, haveData bool) Kind {
 	switch {
 	case p.Nested != "":
 		return Kind{Word: "nested", Describe: p.Nested + ", a nested Parquet column: not readable by ordplan (write it as a flat column to use it)"}
+	case len(p.Merged) > 0:
+		ranges := p.Merged
+		if len(ranges) > 3 {
+			ranges = append(slices.Clone(ranges[:3]), "...")
+		}
+		return Kind{Word: "merged", Describe: fmt.Sprintf("merged cells (%s) cover some of its cells, which hold no value of their own: not readable by ordplan until they are unmerged and each row's value written in its own cell", strings.Join(ranges, ", "))}
 	case p.Rows == p.Missing:
 		return Kind{Word: "empty", Describe: "every cell is missing" + miss}
 	case p.Numeric && p.Distinct == 2 && p.Min == 0 && p.Max == 1:
@@ -110,7 +116,7 @@ func Write(in Input) ([]byte, error) {
 		switch {
 		case c.Numeric && weightLike(c):
 			weighty = append(weighty, c.Name)
-		case kinds[i].Word == "nested":
+		case kinds[i].Word == "nested" || kinds[i].Word == "merged":
 			// Described as not readable above; never a predictor.
 		case kinds[i].Word == "cluster?":
 			clustery = append(clustery, c.Name)

@@ -58,6 +58,11 @@ type Profile struct {
 	// Nested: what a Parquet file's nested column is ("a list", "a map",
 	// "a struct", ...), which ordplan does not read; "" for any other.
 	Nested string
+	// Merged are the ranges of merged cells (B3:B22) that cover cells of a
+	// workbook's column but for the one holding their value, in order:
+	// those cells hold no value, are not counted among the values, and a
+	// plan reading the column is refused (sheetRecords.mergedUsed).
+	Merged []string
 }
 
 // topLikeCodes are numbers that surveys conventionally write at the top
@@ -166,6 +171,12 @@ func (r *reader) profile() ([]Profile, error) {
 			cell = strings.TrimSpace(cell)
 			if r.missing[cell] {
 				p.Missing++
+				continue
+			}
+			if m := mergedRange(cell); m != "" {
+				if !slices.Contains(p.Merged, m) {
+					p.Merged = append(p.Merged, m)
+				}
 				continue
 			}
 			if all[i] != nil {
