@@ -3396,6 +3396,7 @@ var testedElsewhere = map[string]struct{ file, name string }{
 	"Q24": {"../../runner/queue/worded_test.go", "TestAckWaitOfRunningWorkersKept"},
 	"Q27": {"../../runner/queue/notes_test.go", "TestCoordinatorSaysWhenAWorkerFallsSilent"},
 	"Q28": {"../../runner/queue/othersecret_test.go", "TestOnlyRefusingWorkersEndTheRun"},
+	"Q29": {"../../runner/queue/othersecret_test.go", "TestWorkerOfAnotherBuildRefusesJobs"},
 }
 
 // Every item of the catalogue is in docs/bad-inputs.md, and every item

@@ -211,8 +211,10 @@ func (c *Client) logf(format string, a ...any) {
 	}
 }
 
-// sealTask encodes and seals a task for its subject.
+// sealTask encodes and seals a task for its subject, with this build
+// (Build): the build that must compute it.
 func (c *Client) sealTask(t *Task) ([]byte, error) {
+	t.Build = Build()
 	b, err := encode(t)
 	if err != nil {
 		return nil, err

@@ -100,12 +100,12 @@ func (co *Coordinator) Stats() []BatchStats {
 	return append([]BatchStats(nil), co.stats...)
 }
 
-// RunID identifies a batch of a plan's fits: a hash of the format and
-// program versions, the plan hash and the job list (which holds the data
+// RunID identifies a batch of a plan's fits: a hash of the format
+// version, the program's build (Build), the plan hash and the job list (which holds the data
 // hash, the data options, the models and the fit options).
 func RunID(planHash string, jobs []runner.Job) (string, error) {
 	h := sha256.New()
-	fmt.Fprintf(h, "%s\n%s\n%s\n", formatVersion, runner.Version, planHash)
+	fmt.Fprintf(h, "%s\n%s\n%s\n", formatVersion, Build(), planHash)
 	enc := json.NewEncoder(h)
 	for _, j := range jobs {
 		if err := enc.Encode(j); err != nil {

@@ -25,6 +25,7 @@ type Task struct {
 	Index int    // position in the batch: the second part
 	ID    string // what the reply must name: the fit id or the partition hash
 	Kind  string
+	Build string         // the coordinator's build (Build), which the worker's must be
 	Fit   *runner.Job    // KindFit
 	Part  *PartitionTask // KindSums, KindDiag, KindScores
 }

@@ -3,6 +3,8 @@ package queue
 import (
 	"strconv"
 	"time"
+
+	"ordplan/runner"
 )
 
 // Names of the JetStream resources the coordinator and the workers share.
@@ -54,9 +56,24 @@ const (
 	// field it does not know answers a different question (3: a partition
 	// task's Theta is in coordinates centred by its Shift; 4: a reply's
 	// Fault marks a failure of the worker, which an older worker's error
-	// reply does not, so its errors must not be reused as fits' failures).
-	formatVersion = "ordplan-queue/4"
+	// reply does not, so its errors must not be reused as fits' failures; 5: a
+	// task carries the coordinator's Build, which a worker of another build
+	// refuses, where an older worker would compute it).
+	formatVersion = "ordplan-queue/5"
 )
+
+// Build is the build of ordplan a job is computed by: the program's
+// version and, when the build has one, its source revision
+// (runner.Revision). A coordinator's jobs carry its Build (Task.Build),
+// which enters its batch ids, and a worker of another build refuses them
+// (Worker.refuse), so that a run's fits are those of the build its
+// run.json names.
+func Build() string {
+	if rev := runner.Revision(); rev != "" {
+		return runner.Version + " (" + rev + ")"
+	}
+	return runner.Version
+}
 
 func jobSubject(batch string, index int) string {
 	return JobSubject + "." + batch + "." + strconv.Itoa(index)

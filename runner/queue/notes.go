@@ -57,7 +57,9 @@ type note struct {
 	Kind     string `json:"kind"`
 	Delivery uint64 `json:"delivery,omitempty"`
 	EveryMS  int64  `json:"every_ms,omitempty"`
-	AckMS    int64  `json:"ack_wait_ms,omitempty"`
+	// Build is, in a refusal for another build, the refusing worker's.
+	Build string `json:"build,omitempty"`
+	AckMS int64  `json:"ack_wait_ms,omitempty"`
 }
 
 // noteSubjectOf is the notes subject of the job published on subject
@@ -232,8 +234,9 @@ func (bn *batchNotes) stop() {
 
 // take records a note.
 func (bn *batchNotes) take(h heard) {
-	if h.sealed {
-		bn.since = time.Time{} // a worker with this coordinator's secret is alive
+	if h.sealed && h.note.Kind != noteRefused {
+		// A worker with this coordinator's secret (and build) is alive.
+		bn.since = time.Time{}
 	}
 	i, ok := replyIndex(strings.TrimPrefix(h.subject, NoteSubject+"."), bn.id, len(bn.tasks))
 	if !ok || bn.done[i] {
@@ -247,7 +250,13 @@ func (bn *batchNotes) take(h heard) {
 		if bn.since.IsZero() {
 			bn.since = h.at
 		}
-		if bn.refused[n.Worker] == 0 {
+		switch {
+		case bn.refused[n.Worker] > 0:
+		case n.Build != "":
+			bn.order = append(bn.order, n.Worker)
+			bn.c.logf("queue: worker %s refused job %s: it runs ordplan %s, and this coordinator ordplan %s; the job stays on the queue for a worker of this build: run one build of ordplan on the coordinator and every worker",
+				n.Worker, t.label(), shownName(n.Build), Build())
+		default:
 			bn.order = append(bn.order, n.Worker)
 			bn.c.logf("queue: worker %s refused job %s: its secret differs from this coordinator's, or it runs another version of ordplan; the job stays on the queue for a worker with this coordinator's secret: give worker %s the coordinator's secret file (--queue-secret-file) and this version of ordplan, or stop it",
 				n.Worker, t.label(), n.Worker)

@@ -148,3 +148,61 @@ func TestCoordinatorSaysWhatItWaitsFor(t *testing.T) {
 		t.Error("the batch ended without its reply")
 	}
 }
+
+// A worker of another build of ordplan (another version or source
+// revision) than the coordinator's refuses its jobs, naming both builds,
+// and puts them back without spending their deliveries; the coordinator
+// says so once, and a worker of its build computes them. Such a worker
+// computed them, so a run's fits could come from a build other than the
+// one its run.json names; and a build's stored replies were reused by
+// another build's run of the same plan.
+func TestWorkerOfAnotherBuildRefusesJobs(t *testing.T) {
+	q := newTestQueue(t, 60*time.Second, fit.ParallelEffects, fit.NonparallelEffects)
+	octx, cancel := context.WithCancel(context.Background())
+	oc := connect(t, q.ctx, q.url)
+	oldLog := &LogBuffer{}
+	const oldBuild = "0.0.9 (git 0123456789ab)"
+	old := &Worker{Client: oc, Name: "old", CacheDir: t.TempDir(), AckWait: 5 * time.Second, Log: oldLog, refusedPause: 100 * time.Millisecond, build: oldBuild}
+	done := make(chan error, 1)
+	go func() { done <- old.Run(octx) }()
+	t.Cleanup(func() {
+		cancel()
+		if err := <-done; err != nil {
+			t.Error(err)
+		}
+	})
+	waitFor(t, 10*time.Second, "old ready", func() bool { return strings.Contains(oldLog.String(), "ready") })
+	clog := &LogBuffer{}
+	co := q.coordinator(t, clog)
+	type outcome struct {
+		res  []*fit.Result
+		errs []error
+	}
+	got := make(chan outcome, 1)
+	go func() {
+		res, errs := co.Execute(q.jobs)
+		got <- outcome{res, errs}
+	}()
+	waitFor(t, 20*time.Second, "five refusals", func() bool { return oldLog.Count("job refused") >= 5 })
+	right := startWorker(t, q.url, "right", 5*time.Second, 0)
+	o := <-got
+	for i, err := range o.errs {
+		if err != nil || o.res[i] == nil {
+			t.Fatalf("job %d: %v", i, err)
+		}
+	}
+	want := "job refused: job cumulative/parallel/logit comes from a coordinator running ordplan " + Build() + ", and this worker runs ordplan " + oldBuild + ": a run's fits are made by the build that runs it, which its run.json names; put back on the queue for a worker of the coordinator's build (not counted against its delivery limit, refusal 1): run one build of ordplan on the coordinator and every worker"
+	if !strings.Contains(oldLog.String(), want) {
+		t.Errorf("the worker of another build logged\n%s\nwant a line with\n%s", oldLog, want)
+	}
+	if strings.Contains(oldLog.String(), "started") {
+		t.Errorf("the worker of another build computed a job:\n%s", oldLog)
+	}
+	if n := right.Count("(delivery 1)"); n != 2 || strings.Contains(right.String(), "(delivery 2") {
+		t.Errorf("the right worker's deliveries were spent by refusals:\n%s", right)
+	}
+	said := "queue: worker old refused job cumulative/"
+	if n := clog.Count(said); n != 1 || !strings.Contains(clog.String(), ": it runs ordplan "+oldBuild+", and this coordinator ordplan "+Build()+"; the job stays on the queue for a worker of this build: run one build of ordplan on the coordinator and every worker") {
+		t.Errorf("the coordinator said %d times who refused the jobs, want once:\n%s", n, clog)
+	}
+}

@@ -14,7 +14,6 @@ import (
 
 	"github.com/nats-io/nats.go/jetstream"
 
-	"ordplan/runner"
 	"ordplan/runner/data"
 	"ordplan/runner/fit"
 )
@@ -115,7 +114,7 @@ func newPartRun(ctx context.Context, c *Client, parts []PartitionRef, whole fit.
 func contentKey(parent []byte, what string, vs ...any) ([]byte, error) {
 	key := sha256.New()
 	if parent == nil {
-		fmt.Fprintf(key, "%s\n%s\n%s\n", formatVersion, runner.Version, what)
+		fmt.Fprintf(key, "%s\n%s\n%s\n", formatVersion, Build(), what)
 	} else {
 		fmt.Fprintf(key, "%x\n%s\n", parent, what)
 	}

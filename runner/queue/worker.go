@@ -46,6 +46,8 @@ type Worker struct {
 	abandoned atomic.Int64 // jobs given back because of Abort
 	// refusedPause, when set, replaces refusedPause (tests).
 	refusedPause time.Duration
+	// build, when set, replaces Build as the worker's (tests).
+	build string
 
 	cache    *dataCache
 	parts    *partitionCache
@@ -197,10 +199,30 @@ const (
 	headerRefusals = "Ordplan-Refusals"
 )
 
-// refuse answers a job that does not open (err). A message in ordplan's
+// otherBuildError is a job published by a coordinator of another build
+// than the worker's (Build): the worker refuses it (refuse), since its
+// fits might not be those of the build the run records.
+type otherBuildError struct {
+	job, coordinator, worker string
+}
+
+func (e *otherBuildError) Error() string {
+	return fmt.Sprintf("job %s comes from a coordinator running ordplan %s, and this worker runs ordplan %s: a run's fits are made by the build that runs it, which its run.json names", e.job, e.coordinator, e.worker)
+}
+
+// ownBuild is the worker's build: Build, or build in the tests.
+func (w *Worker) ownBuild() string {
+	if w.build != "" {
+		return w.build
+	}
+	return Build()
+}
+
+// refuse answers a job that does not open (err), or that a coordinator of
+// another build published (otherBuildError). A message in ordplan's
 // sealed form whose seal does not match may come from a coordinator whose
 // secret differs from this worker's (or another version of ordplan): the
-// fault may be this worker's, so the job is put back on the queue for
+// fault may be this worker's, as it may be with another build, so the job is put back on the queue for
 // another worker without spending the deliveries the job may count
 // (published anew at the end of the queue as it is, headers and all, with
 // its refusals counted in headerRefusals, and this message acknowledged),
@@ -216,7 +238,9 @@ func (w *Worker) refuse(ctx context.Context, msg jetstream.Msg, err error) {
 	if md, merr := msg.Metadata(); merr == nil {
 		delivered = md.NumDelivered
 	}
-	if !errors.Is(err, errSealMismatch) {
+	var other *otherBuildError
+	otherBuild := errors.As(err, &other)
+	if !errors.Is(err, errSealMismatch) && !otherBuild {
 		w.logf("%s: job refused: %v", msg.Subject(), err)
 		msg.TermWithReason("job refused: " + err.Error())
 		return
@@ -226,25 +250,32 @@ func (w *Worker) refuse(ctx context.Context, msg jetstream.Msg, err error) {
 		refusals, _ = strconv.Atoi(h.Get(headerRefusals))
 	}
 	refusals = max(refusals, 0) + 1
-	w.sendNote(msg.Subject(), note{Kind: noteRefused, Delivery: delivered})
-	const what = "if this worker refuses every job, give it the coordinator's secret file (--queue-secret-file) and the coordinator's version of ordplan"
+	refusal := note{Kind: noteRefused, Delivery: delivered}
+	what := "if this worker refuses every job, give it the coordinator's secret file (--queue-secret-file) and the coordinator's version of ordplan"
+	whom, others := "a worker holding the coordinator's secret", "workers with another secret than its coordinator's"
+	if otherBuild {
+		refusal.Build = other.worker
+		what = "run one build of ordplan on the coordinator and every worker"
+		whom, others = "a worker of the coordinator's build", "workers of another build or secret than its coordinator's"
+	}
+	w.sendNote(msg.Subject(), refusal)
 	switch {
 	case refusals >= MaxRefusals || delivered >= MaxDeliver:
-		w.logf("%s: job refused: %v; removed from the queue, refused %s by workers with another secret than its coordinator's, delivered %d times: %s",
-			msg.Subject(), err, words.Count(refusals, "time", "times"), delivered, what)
+		w.logf("%s: job refused: %v; removed from the queue, refused %s by %s, delivered %d times: %s",
+			msg.Subject(), err, words.Count(refusals, "time", "times"), others, delivered, what)
 		msg.TermWithReason("job refused: " + err.Error())
 		return
 	case delivered == 1:
 		how, aerr := w.putBack(msg, refusals)
 		if aerr == nil {
-			w.logf("%s: job refused: %v; put back on the queue for a worker holding the coordinator's secret (%s, refusal %d): %s",
-				msg.Subject(), err, how, refusals, what)
+			w.logf("%s: job refused: %v; put back on the queue for %s (%s, refusal %d): %s",
+				msg.Subject(), err, whom, how, refusals, what)
 			break
 		}
 		fallthrough
 	default:
-		w.logf("%s: job refused: %v; left on the queue for a worker holding the coordinator's secret (delivery %d of at most %d, removed at the last): %s",
-			msg.Subject(), err, delivered, MaxDeliver, what)
+		w.logf("%s: job refused: %v; left on the queue for %s (delivery %d of at most %d, removed at the last): %s",
+			msg.Subject(), err, whom, delivered, MaxDeliver, what)
 		msg.NakWithDelay(refusedRetryDelay)
 	}
 	pause := refusedPause
@@ -289,6 +320,9 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 	var gaveBack int
 	if err == nil {
 		delivered, gaveBack, err = w.Client.deliveries(msg, t)
+	}
+	if err == nil && t.Build != w.ownBuild() {
+		err = &otherBuildError{job: t.jobName(), coordinator: t.Build, worker: w.ownBuild()}
 	}
 	if err != nil {
 		w.refuse(ctx, msg, err)
