@@ -249,7 +249,9 @@ func writeMethods(d *doc, r *runner.Result) {
 // from, with the registration id, or that it was not frozen; "" when the
 // plan was not compared with a lock. Runs of the plan that its output
 // folder held from before it was frozen (runner.EarlierLockRuns) are
-// said too: their results existed when it was registered.
+// said too: their results existed when it was registered; and, for a run
+// that departs from its lock, the runs of the registered plan unchanged
+// that the folder held (runner.EarlierRegisteredRuns).
 func registeredAs(r *runner.Result) string {
 	s := registeredText(r.Registration)
 	before := 0
@@ -260,6 +262,9 @@ func registeredAs(r *runner.Result) string {
 	}
 	if before > 0 {
 		s += fmt.Sprintf("; the output folder held %s of the plan made before it was frozen, whose results existed then, listed at the head of the report", words.Count(before, "run", "runs"))
+	}
+	if n := len(r.EarlierRegistered); n > 0 {
+		s += fmt.Sprintf("; the output folder held %s of the registered plan unchanged, whose results existed before the plan was changed, so the departures may have been chosen after seeing them", words.Count(n, "run", "runs"))
 	}
 	return s
 }
@@ -287,11 +292,35 @@ func registeredText(st *lock.Status) string {
 	}
 	switch st.State {
 	case lock.StateDeviations:
-		s += fmt.Sprintf("; the plan run departs from the frozen one in %d key%s, each with a stated reason listed at the head of the report", len(st.Changes), plural(len(st.Changes)))
+		s += fmt.Sprintf("; the plan run departs from the frozen one in %d key%s (%s), each with a stated reason listed at the head of the report", len(st.Changes), plural(len(st.Changes)), changedKeys(st))
 	case lock.StateUnexplained:
-		s += fmt.Sprintf("; the plan run departs from the frozen one in %d key%s, %d of them without a stated reason", len(st.Changes), plural(len(st.Changes)), st.Unexplained())
+		s += fmt.Sprintf("; the plan run departs from the frozen one in %d key%s (%s), %d of them without a stated reason", len(st.Changes), plural(len(st.Changes)), changedKeys(st), st.Unexplained())
 	}
 	return s
+}
+
+// maxMethodsKeys is how many changed keys the methods paragraph names.
+const maxMethodsKeys = 8
+
+// changedKeys names the keys in which the plan departs from its lock, as
+// the head of the report lists them (an item moved: "rules[3], moved from
+// rules[2]"), the first maxMethodsKeys and the count of the others: a
+// methods section copied without the report's head still says what
+// changed after registration.
+func changedKeys(st *lock.Status) string {
+	var keys []string
+	for _, c := range st.Changes {
+		if len(keys) == maxMethodsKeys {
+			keys = append(keys, fmt.Sprintf("%d more", len(st.Changes)-maxMethodsKeys))
+			break
+		}
+		k := c.Path
+		if c.Moved != "" {
+			k += ", moved from " + c.Moved
+		}
+		keys = append(keys, k)
+	}
+	return strings.Join(keys, "; ")
 }
 
 // firstReplaced is the oldest readable lock that freeze --replace kept

@@ -1,6 +1,7 @@
 package render
 
 import (
+	"fmt"
 	"strings"
 	"testing"
 
@@ -22,9 +23,9 @@ func TestMethodsNameTheRegistration(t *testing.T) {
 		{&lock.Status{State: lock.StateNone, LockFile: "p.lock.json"}, "; the plan was not frozen in a lock file, so the report cannot show when it was written"},
 		{&lock.Status{State: lock.StateMatches, Lock: f}, "; frozen on 2026-01-02T03:04:05Z, registration REG-7, canonical SHA-256 0123456789ab"},
 		{&lock.Status{State: lock.StateDeviations, Lock: f, Changes: []lock.Explained{{Change: lock.Change{Path: "seed"}, Reason: "why"}}},
-			"; frozen on 2026-01-02T03:04:05Z, registration REG-7, canonical SHA-256 0123456789ab; the plan run departs from the frozen one in 1 key, each with a stated reason listed at the head of the report"},
+			"; frozen on 2026-01-02T03:04:05Z, registration REG-7, canonical SHA-256 0123456789ab; the plan run departs from the frozen one in 1 key (seed), each with a stated reason listed at the head of the report"},
 		{&lock.Status{State: lock.StateUnexplained, Lock: f, Changes: []lock.Explained{{Change: lock.Change{Path: "seed"}, Reason: "why"}, {Change: lock.Change{Path: "title"}}}},
-			"; the plan run departs from the frozen one in 2 keys, 1 of them without a stated reason"},
+			"; the plan run departs from the frozen one in 2 keys (seed; title), 1 of them without a stated reason"},
 		{&lock.Status{State: lock.StateMatches, Lock: f, Replaced: []lock.Replaced{{File: "p.lock.json.replaced-x", Error: "edited by hand"},
 			{File: "p.lock.json.replaced-y", FrozenAt: "2025-12-01T00:00:00Z", Registration: "REG-6", Changed: []string{"seed", "title"}}}},
 			"; frozen on 2026-01-02T03:04:05Z, registration REG-7, canonical SHA-256 0123456789ab; the plan was first frozen on 2025-12-01T00:00:00Z (registration REG-6) and frozen anew since (the plan run differs from that form in 2 keys; listed at the head of the report)"},
@@ -36,9 +37,21 @@ func TestMethodsNameTheRegistration(t *testing.T) {
 			t.Errorf("%+v: got %q, want it to end %q", tc.st, got, tc.want)
 		}
 	}
+	// The keys that changed are named (an item moved, with its place in
+	// the frozen plan), at most maxMethodsKeys of them, and the runs of
+	// the registered plan the folder held before the plan was changed.
+	var many []lock.Explained
+	for i := range maxMethodsKeys + 2 {
+		many = append(many, lock.Explained{Change: lock.Change{Path: fmt.Sprintf("k%d", i)}, Reason: "why"})
+	}
+	many[0].Moved, many[0].Path = "rules[2]", "rules[3]"
+	got := registeredAs(&runner.Result{Registration: &lock.Status{State: lock.StateDeviations, Lock: f, Changes: many}, EarlierRegistered: []runner.EarlierRun{{}}})
+	if want := "; the plan run departs from the frozen one in 10 keys (rules[3], moved from rules[2]; k1; k2; k3; k4; k5; k6; k7; 2 more), each with a stated reason listed at the head of the report; the output folder held 1 run of the registered plan unchanged, whose results existed before the plan was changed, so the departures may have been chosen after seeing them"; !strings.HasSuffix(got, want) {
+		t.Errorf("got %q, want it to end %q", got, want)
+	}
 	// Runs made before the plan was frozen are said after the lock.
 	before := []runner.EarlierLockRun{{State: lock.StateNone}, {State: lock.StateMatches, LockSHA256: "aa"}, {State: lock.StateNone}}
-	got := registeredAs(&runner.Result{Registration: &lock.Status{State: lock.StateMatches, Lock: f}, UnderEarlierLocks: before})
+	got = registeredAs(&runner.Result{Registration: &lock.Status{State: lock.StateMatches, Lock: f}, UnderEarlierLocks: before})
 	if want := "; frozen on 2026-01-02T03:04:05Z, registration REG-7, canonical SHA-256 0123456789ab; the output folder held 2 runs of the plan made before it was frozen, whose results existed then, listed at the head of the report"; got != want {
 		t.Errorf("got %q, want %q", got, want)
 	}
