@@ -9,6 +9,7 @@ import (
 
 	"ordplan/internal/words"
 	"ordplan/plan"
+	"ordplan/plan/lock"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
 	"ordplan/runner/fit"
@@ -25,8 +26,8 @@ func build(r *runner.Result, dec *runner.Decisions, changes []string) *doc {
 	writeSimulated(d, r)
 	writeRegistration(d, r)
 	writeSimulatedHow(d, r)
-	d.p("This report was written by ordplan %s from the plan %s (sha256 `%s`) and %s. The plan fixed the candidate models and the decision rules before the models were fitted; the same plan and data give this report byte for byte.",
-		r.Version, mdCode(dec.Plan.File), p.Hash, dataSentence(r))
+	d.p("This report was written by ordplan %s from the plan %s (sha256 `%s`) and %s. The plan fixed the candidate models and the decision rules before the models were fitted%s; the same plan and data give this report byte for byte.",
+		r.Version, mdCode(dec.Plan.File), p.Hash, dataSentence(r), asRun(r.Registration))
 	if r.Started != "" {
 		d.p("Run started at %s (the plan asks for a timestamp, so reruns differ in this line and in run.json).", r.Started)
 	}
@@ -764,4 +765,14 @@ func partList(r *runner.Result) string {
 		names = append(names[:3], "...", names[len(names)-1])
 	}
 	return strings.Join(names, ", ")
+}
+
+// asRun qualifies "the plan fixed the candidate models and the decision
+// rules" for a plan that departs from its registered form: the plan so
+// fixed is the one run, not the one registered.
+func asRun(st *lock.Status) string {
+	if st == nil || st.State != lock.StateDeviations && st.State != lock.StateUnexplained {
+		return ""
+	}
+	return fmt.Sprintf(" (the plan as run, which departs from its registered form in %s, listed above)", words.Count(len(st.Changes), "key", "keys"))
 }

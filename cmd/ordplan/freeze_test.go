@@ -48,6 +48,11 @@ func TestFreezeRunDeviations(t *testing.T) {
 		!strings.Contains(md, "| `rules[1].choose.by` | `\"aic\"` | `\"bic\"` | BIC, as the protocol's section 4 says |") {
 		t.Fatalf("with reason: %d %s\n%s", code, msg, md)
 	}
+	// The plan that fixed the models and rules is the one run, not the
+	// one registered.
+	if !strings.Contains(md, "The plan fixed the candidate models and the decision rules before the models were fitted (the plan as run, which departs from its registered form in 1 key, listed above);") {
+		t.Errorf("the opening does not qualify the plan:\n%s", md)
+	}
 	// Without the reason: refused, then forced.
 	os.WriteFile(planPath, []byte(strings.Replace(src, "{by: aic}", "{by: bic}", 1)), 0o644)
 	if _, msg, code = report(); code != 1 || !strings.Contains(msg, `rules[1].choose.by: "aic" -> "bic"`) {
