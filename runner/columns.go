@@ -365,7 +365,7 @@ func compareColumns(was, now OutcomeColumns) (pairs []columnPair, kind []int, mo
 		switch {
 		case p.was.ValuesSHA256 == p.now.ValuesSHA256 && len(summaryChanges(p.was, p.now)) == 0:
 			// (the same values may miss in more rows that are not used)
-		case p.was.ValuesSHA256 == p.now.ValuesSHA256:
+		case p.was.ValuesSHA256 == p.now.ValuesSHA256, len(renamedLevels(p.was, p.now)) > 0:
 			kind[i] = 2
 			changed++
 		case p.was.ValuesMultiset == p.now.ValuesMultiset && p.was.Values == p.now.Values:
@@ -379,10 +379,28 @@ func compareColumns(was, now OutcomeColumns) (pairs []columnPair, kind []int, mo
 	return pairs, kind, moved, changed, unpaired
 }
 
+// outcomeColumnChanges words how the columns of an outcome changed
+// between two records (columnLines), then names the columns the earlier
+// record read, in their role, that the later one does not read and did
+// not take under another name (a predictor dropped from the plan).
 func outcomeColumnChanges(was, now OutcomeColumns) []string {
+	out, sources := columnLines(was, now)
+	label := func(c ColumnPrint) string { return fmt.Sprintf("%s (%s)", c.Column, c.Role) }
+	for _, w := range was.Columns {
+		if !slices.ContainsFunc(now.Columns, func(c ColumnPrint) bool { return label(c) == label(w) }) && !slices.Contains(sources, label(w)) {
+			out = append(out, fmt.Sprintf("%s: column %s is no longer read: the earlier run read it in this role, this run does not", now.Outcome, label(w)))
+		}
+	}
+	return out
+}
+
+// columnLines words how the columns both records read changed, and
+// returns with them the earlier record's columns that the later one
+// holds under another name (renamedColumns).
+func columnLines(was, now OutcomeColumns) (lines, sources []string) {
 	pairs, kind, moved, changed, unpaired := compareColumns(was, now)
 	who := now.Outcome + ": "
-	renamed, unpaired := renamedColumns(was, now, unpaired)
+	renamed, sources, unpaired := renamedColumns(was, now, unpaired)
 	for i := range renamed {
 		renamed[i] = who + renamed[i]
 	}
@@ -395,16 +413,16 @@ func outcomeColumnChanges(was, now OutcomeColumns) []string {
 		notCompared = fmt.Sprintf("%s%s %s, which this run reads (that run did not read %s in this role, or its record was edited since), so whether %s changed cannot be said", who, notComparedLead, strings.Join(unpaired, ", "), pronoun(len(unpaired), "it", "them"), pronoun(len(unpaired), "it", "they"))
 	}
 	if changed == 0 && moved == 0 && notCompared != "" {
-		return append(renamed, notCompared+"; no column both runs read changed in the rows used")
+		return append(renamed, notCompared+"; no column both runs read changed in the rows used"), sources
 	}
 	if changed == 0 && moved == 0 && len(renamed) > 0 {
-		return append(renamed, who+"no other column this outcome uses changed in the rows it uses")
+		return append(renamed, who+"no other column this outcome uses changed in the rows it uses"), sources
 	}
 	if changed == 0 && moved == 0 {
-		return []string{who + noColumnChanged + " (the data changed in columns it does not read, or in rows it does not use: outside the subset, or dropped for a missing value)"}
+		return []string{who + noColumnChanged + " (the data changed in columns it does not read, or in rows it does not use: outside the subset, or dropped for a missing value)"}, sources
 	}
 	if changed == 0 && sameRows(was, now) {
-		return append(renamed, fmt.Sprintf("%sthe %d%s: no value of a column changed (a reordering of the rows changes no fit beyond rounding in the last digits, so no column is named)", who, now.Rows, rowsReordered))
+		return append(renamed, fmt.Sprintf("%sthe %d%s: no value of a column changed (a reordering of the rows changes no fit beyond rounding in the last digits, so no column is named)", who, now.Rows, rowsReordered)), sources
 	}
 	out := renamed
 	for i, p := range pairs {
@@ -422,7 +440,7 @@ func outcomeColumnChanges(was, now OutcomeColumns) []string {
 	if notCompared != "" {
 		out = append(out, notCompared)
 	}
-	return out
+	return out, sources
 }
 
 // renamedColumns finds, among the later record's columns the earlier one
@@ -430,8 +448,9 @@ func outcomeColumnChanges(was, now OutcomeColumns) []string {
 // for row those of a column of the earlier record, in the same role, that
 // the later one does not hold: the same column under a new name (an
 // export that renamed it, and the plan following it). It words each and
-// returns the unpaired columns left.
-func renamedColumns(was, now OutcomeColumns, unpaired []string) (renamed, left []string) {
+// returns the earlier columns so renamed ("COLUMN (ROLE)") and the
+// unpaired columns left.
+func renamedColumns(was, now OutcomeColumns, unpaired []string) (renamed, sources, left []string) {
 	label := func(c ColumnPrint) string { return fmt.Sprintf("%s (%s)", c.Column, c.Role) }
 	for _, u := range unpaired {
 		i := slices.IndexFunc(now.Columns, func(c ColumnPrint) bool { return label(c) == u })
@@ -448,8 +467,9 @@ func renamedColumns(was, now OutcomeColumns, unpaired []string) (renamed, left [
 			continue
 		}
 		renamed = append(renamed, fmt.Sprintf("column %s holds, row for row, the values that column %s held in the earlier run: the same column under another name", u, was.Columns[j].Column))
+		sources = append(sources, label(was.Columns[j]))
 	}
-	return renamed, left
+	return renamed, sources, left
 }
 
 // rowsReordered is the words of the line of rows that are the same in
@@ -502,11 +522,17 @@ func summaryChanges(was, now ColumnPrint) []string {
 	if was.Clusters != now.Clusters {
 		d = append(d, fmt.Sprintf("clusters %d -> %d", was.Clusters, now.Clusters))
 	}
-	before := map[string]int{}
+	if r := renamedLevels(was, now); len(r) > 0 {
+		return append(d, r...)
+	}
+	before, after := map[string]int{}, map[string]int{}
 	for _, l := range was.Levels {
 		before[l.Level] = l.Rows
 	}
-	var lv []string
+	for _, l := range now.Levels {
+		after[l.Level] = l.Rows
+	}
+	var lv, gone, added []string
 	for _, l := range now.Levels {
 		if b, ok := before[l.Level]; ok && b != l.Rows {
 			lv = append(lv, fmt.Sprintf("%s %d -> %d", l.Level, b, l.Rows))
@@ -515,7 +541,46 @@ func summaryChanges(was, now ColumnPrint) []string {
 	if len(lv) > 0 {
 		d = append(d, "rows per level "+strings.Join(lv, ", "))
 	}
+	for _, l := range was.Levels {
+		if _, ok := after[l.Level]; !ok {
+			gone = append(gone, fmt.Sprintf("%s (%d rows then)", l.Level, l.Rows))
+		}
+	}
+	for _, l := range now.Levels {
+		if _, ok := before[l.Level]; !ok {
+			added = append(added, fmt.Sprintf("%s (%d rows)", l.Level, l.Rows))
+		}
+	}
+	if len(gone) > 0 {
+		d = append(d, "no longer "+pronoun(len(gone), "a level", "levels")+": "+strings.Join(gone, ", "))
+	}
+	if len(added) > 0 {
+		d = append(d, pronoun(len(added), "new level", "new levels")+": "+strings.Join(added, ", "))
+	}
 	return d
+}
+
+// renamedLevels says which levels of a column were renamed, when the
+// column holds the same values in any order (ValuesMultiset, of the
+// levels' places, not their names; ValuesSHA256 takes the names too) and
+// its levels are the same in number and in rows, in order, some under
+// other names: "level neutral renamed neither (533 rows, as before)".
+// None otherwise.
+func renamedLevels(was, now ColumnPrint) []string {
+	if was.ValuesMultiset != now.ValuesMultiset || was.Values != now.Values || len(was.Levels) != len(now.Levels) {
+		return nil
+	}
+	var out []string
+	for i, l := range was.Levels {
+		n := now.Levels[i]
+		if n.Rows != l.Rows {
+			return nil
+		}
+		if n.Level != l.Level {
+			out = append(out, fmt.Sprintf("level %s renamed %s (%d rows, as before)", l.Level, n.Level, n.Rows))
+		}
+	}
+	return out
 }
 
 // numPair writes two different numbers so that they read differently:

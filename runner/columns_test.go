@@ -2,6 +2,7 @@ package runner
 
 import (
 	"math"
+	"slices"
 	"strings"
 	"testing"
 
@@ -75,6 +76,30 @@ func TestColumnChanges(t *testing.T) {
 		}), "y: the 5 rows used are the same, in another order: no value of a column changed (a reordering of the rows changes no fit beyond rounding in the last digits, so no column is named)"},
 		{"a missing value more", printOf(y, x, g, w, c, 1), "y: column x (predictor) changed: missing 0 -> 1"},
 	}
+	// A level renamed (the same rows: the fingerprint is of the level's
+	// place), a level gone and another new, a column no longer read.
+	edited := func(f func(o *OutcomeColumns)) OutcomeColumns {
+		o := base
+		o.Columns = append([]ColumnPrint(nil), base.Columns...)
+		f(&o)
+		return o
+	}
+	cases = append(cases, []struct {
+		name string
+		now  OutcomeColumns
+		want string
+	}{
+		{"a level renamed", edited(func(o *OutcomeColumns) {
+			o.Columns[2].Levels = []LevelCount{{"p", 3}, {"qq", 2}}
+			o.Columns[2].ValuesSHA256 = "other" // the labels take part
+		}), "y: column g (predictor) changed: level q renamed qq (2 rows, as before)"},
+		{"a level gone, one new", edited(func(o *OutcomeColumns) {
+			o.Columns[2].Levels = []LevelCount{{"p", 2}, {"r", 3}}
+			o.Columns[2].ValuesSHA256, o.Columns[2].ValuesMultiset, o.RowsMultiset = "other", "other", "other"
+		}), "y: column g (predictor) changed: rows per level p 3 -> 2, no longer a level: q (2 rows then), new level: r (3 rows)"},
+		{"a column no longer read", edited(func(o *OutcomeColumns) { o.Columns = slices.Delete(o.Columns, 1, 2) }),
+			"y: no column this outcome uses changed in the rows it uses (the data changed in columns it does not read, or in rows it does not use: outside the subset, or dropped for a missing value)\ny: column x (predictor) is no longer read: the earlier run read it in this role, this run does not"},
+	}...)
 	for _, k := range cases {
 		if got := strings.Join(ColumnChanges([]OutcomeColumns{base}, []OutcomeColumns{k.now}), "\n"); got != k.want {
 			t.Errorf("%s:\n got %s\nwant %s", k.name, got, k.want)
