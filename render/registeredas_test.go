@@ -56,3 +56,22 @@ func TestMethodsNameTheRegistration(t *testing.T) {
 		t.Errorf("got %q, want %q", got, want)
 	}
 }
+
+// A rehearsal's report calls what it shows the registered analysis only
+// when the plan matches its lock.
+func TestRehearsedAnalysis(t *testing.T) {
+	for _, tc := range []struct {
+		st   *lock.Status
+		want string
+	}{
+		{&lock.Status{State: lock.StateMatches}, "the registered analysis"},
+		{&lock.Status{State: lock.StateDeviations}, "the analysis of this plan, as changed since it was registered (see Deviations from the registered plan),"},
+		{&lock.Status{State: lock.StateUnexplained}, "the analysis of this plan, as changed since it was registered (see Deviations from the registered plan),"},
+		{&lock.Status{State: lock.StateNone}, "the analysis of this plan (not registered: it has no lock)"},
+		{nil, "the analysis of this plan"},
+	} {
+		if got := rehearsedAnalysis(tc.st); got != tc.want {
+			t.Errorf("%+v: %q, want %q", tc.st, got, tc.want)
+		}
+	}
+}

@@ -5,6 +5,7 @@ import (
 	"strconv"
 	"strings"
 
+	"ordplan/plan/lock"
 	"ordplan/render/numfmt"
 	"ordplan/runner"
 )
@@ -25,8 +26,22 @@ func writeSimulated(d *doc, r *runner.Result) {
 	if model == "" {
 		model = "cumulative " + s.Link
 	}
-	d.p("**%s.** No real observation was used: `ordplan %s` drew %d rows (seed %d, %s) from the plan's `assumptions` and data dictionary, with a %s model generating each outcome, and ran the whole plan on them. This report shows what the registered analysis will print; its numbers say nothing about the real data.",
-		SimulatedMark, s.Command, s.N, s.Seed, mdCode(s.File), model)
+	d.p("**%s.** No real observation was used: `ordplan %s` drew %d rows (seed %d, %s) from the plan's `assumptions` and data dictionary, with a %s model generating each outcome, and ran the whole plan on them. This report shows what %s will print; its numbers say nothing about the real data.",
+		SimulatedMark, s.Command, s.N, s.Seed, mdCode(s.File), model, rehearsedAnalysis(r.Registration))
+}
+
+// rehearsedAnalysis names the analysis a rehearsal shows: the registered
+// one only when the plan matches its lock.
+func rehearsedAnalysis(st *lock.Status) string {
+	switch {
+	case st != nil && st.State == lock.StateMatches:
+		return "the registered analysis"
+	case st != nil && (st.State == lock.StateDeviations || st.State == lock.StateUnexplained):
+		return "the analysis of this plan, as changed since it was registered (see Deviations from the registered plan),"
+	case st != nil && st.State == lock.StateNone:
+		return "the analysis of this plan (not registered: it has no lock)"
+	}
+	return "the analysis of this plan"
 }
 
 // writeSimulatedHow says what the subset kept of the simulated rows and
