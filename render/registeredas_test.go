@@ -75,3 +75,28 @@ func TestRehearsedAnalysis(t *testing.T) {
 		}
 	}
 }
+
+// Under the deviations table the report says that key paths count from
+// 0, with a rule as example when one changed: rules[3] is rule 4.
+func TestFromZero(t *testing.T) {
+	ch := func(paths ...string) []lock.Explained {
+		var out []lock.Explained
+		for _, p := range paths {
+			out = append(out, lock.Explained{Change: lock.Change{Path: p}})
+		}
+		return out
+	}
+	for _, tc := range []struct {
+		changes []lock.Explained
+		want    string
+	}{
+		{ch("seed", "models.links"), ""},
+		{ch("outcomes[0].categories", "rules[3].reject_if_test_rejects.alpha"), "Key paths count the items of a list from 0: `rules[3]` is rule 4 in this report's lists of rules."},
+		{ch("predictors[5]"), "Key paths count the items of a list from 0: `predictors[5]` is item 6 of the plan's `predictors`."},
+		{[]lock.Explained{{Change: lock.Change{Path: "sensitivity[1]", Moved: "sensitivity[0]"}}}, "Key paths count the items of a list from 0: `sensitivity[1]` is item 2 of the plan's `sensitivity`."},
+	} {
+		if got := fromZero(tc.changes); got != tc.want {
+			t.Errorf("%v: %q, want %q", tc.changes, got, tc.want)
+		}
+	}
+}

@@ -3,6 +3,7 @@ package render
 import (
 	"fmt"
 	"slices"
+	"strconv"
 	"strings"
 
 	"ordplan/internal/words"
@@ -122,6 +123,9 @@ func writeLockStatus(d *doc, st *lock.Status, version string, w lockWords, earli
 		rows = append(rows, []string{md(key), md(codeCell(c.From)), md(to), reason})
 	}
 	d.table([]string{"Key", "Registered", "This " + w.what, "Stated reason"}, rows)
+	if note := fromZero(st.Changes); note != "" {
+		d.p("%s", note)
+	}
 	if w.folder {
 		writeEarlierRegistered(d, earlier)
 	}
@@ -129,6 +133,37 @@ func writeLockStatus(d *doc, st *lock.Status, version string, w lockWords, earli
 		d.p("The lock was written by ordplan %s and this is ordplan %s: a key that the newer program adds to the canonical form shows as a change from (absent) although the plan file did not change.", f.Version, version)
 	}
 	writeUnusedDeviations(d, st)
+}
+
+// fromZero says, when a key of the changes indexes a list, that key
+// paths count a list's items from 0, with the first such key as example
+// (a rule's preferred): rules[3] is the report's rule 4, not its rule 3.
+func fromZero(changes []lock.Explained) string {
+	var first string
+	for _, c := range changes {
+		for _, k := range []string{c.Path, c.Moved} {
+			i := strings.Index(k, "[")
+			j := strings.Index(k, "]")
+			if i <= 0 || j < i {
+				continue
+			}
+			if first == "" || !strings.HasPrefix(first, "rules[") && strings.HasPrefix(k, "rules[") {
+				first = k[:j+1]
+			}
+		}
+	}
+	if first == "" {
+		return ""
+	}
+	i := strings.Index(first, "[")
+	n, err := strconv.Atoi(first[i+1 : len(first)-1])
+	if err != nil {
+		return ""
+	}
+	if list := first[:i]; list == "rules" {
+		return fmt.Sprintf("Key paths count the items of a list from 0: %s is rule %d in this report's lists of rules.", mdCode(first), n+1)
+	}
+	return fmt.Sprintf("Key paths count the items of a list from 0: %s is item %d of the plan's %s.", mdCode(first), n+1, mdCode(first[:i]))
 }
 
 // keyChanges writes the keys that changed within an item that moved
