@@ -397,7 +397,7 @@ func writeNonCSV(t *testing.T, dir, csv string) {
 		"emptypart.csv": []byte(strings.SplitAfter(csv, "\n")[0]),
 		"notbook.xlsx":  zipOf(t, "data.csv", csv), "cut.parquet": datesParquet(t)[:300], "binary.csv": []byte("y,a,b\n1,\x00\x01\x02,1\n"),
 		"cut.xlsx": toWorkbook(t, []byte(csv))[:2000],
-		"new.csv":  []byte("a,b\n0.5,1\n-1,0\n"), "short.key": []byte("short\n"), "one.login": []byte("ordplan hunter2-pw\n"), "empty.token": []byte("\n"), "queue.token": []byte("tok-hunter2\n"), "queue.key": []byte("a shared secret of the catalogue's queue\n"), "precious.txt": []byte("keep me\n"),
+		"new.csv":  []byte("a,b\n0.5,1\n-1,0\n"), "newsemi.csv": []byte("a;b\n0,5;1\n-1;0\n"), "short.key": []byte("short\n"), "one.login": []byte("ordplan hunter2-pw\n"), "empty.token": []byte("\n"), "queue.token": []byte("tok-hunter2\n"), "queue.key": []byte("a shared secret of the catalogue's queue\n"), "precious.txt": []byte("keep me\n"),
 	}
 	os.MkdirAll(filepath.Join(dir, "parts"), 0o755)
 	for name, b := range files {
@@ -2149,6 +2149,9 @@ func catalogue(dir string) (items []badInput) {
 			}},
 		{id: "X32", name: "a row of totals typed as numbers, labelled Total", args: fitArgs(d("typedtotals.xlsx"), "--predictors", "a,b"), code: 1,
 			want: []string{"ordplan: typedtotals.xlsx:8: column \"a\": row 8 of sheet \"Sheet1\" looks like a row of totals, not a row of data, and would be read as one: cell D8 says \"Total\", and the numbers of the used columns in it are the sums of the rows above (B8 holds \"3\", the sum of the column's cells above it); delete the row, or move the totals to another sheet (a blank row above them does not end the table: blank rows are skipped and the rows below them read)\n"}},
+		{id: "T39", name: "new rows to predict written in another dialect than the data's", args: []string{"check"},
+			plan: edit("file: d.csv", "file: d.csv") + "inference: {predict: newsemi.csv}\n", code: 1,
+			want: []string{`inference.predict: newsemi.csv: column "a": column not found in the header; available columns: "a;b"; the file looks semicolon-separated with a decimal comma, but new rows are read as the plan's data.delimiter and data.decimal say, comma-separated with a decimal point: write the file so (or, when the data are a workbook or a Parquet file, whose reading those keys do not change, set them: delimiter: semicolon, decimal: comma)`}},
 		{id: "X17", name: "a spreadsheet error value in a used column", args: fitArgs(d("formula.xlsx"), "--predictors", "b"), code: 1,
 			want: []string{`formula.xlsx:4: column "b": value "#DIV/0!" is not a number; it is a spreadsheet's error value: correct the formula that gave it, or list "#DIV/0!" among the missing-value markers (data.missing_values)`}},
 		{id: "X18", name: "a workbook's dates used as a number", args: fitArgs(d("shown.xlsx"), "--predictors", "a,day"), code: 1,

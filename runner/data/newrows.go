@@ -2,6 +2,7 @@ package data
 
 import (
 	"bytes"
+	"fmt"
 	"io"
 	"strings"
 )
@@ -91,7 +92,7 @@ func LoadNewRows(path string, predictors []string, levels map[string][]string, o
 	for j, c := range cols {
 		i, ok := index[ColumnKey(c)]
 		if !ok {
-			return nil, &Error{File: path, Column: c, Msg: notInHeader("", c, head)}
+			return nil, &Error{File: path, Column: c, Msg: notInHeader("", c, head) + newRowsDialectHint(r.head, dialect)}
 		}
 		if err := r.nestedUsed(c, i); err != nil {
 			return nil, err
@@ -205,4 +206,17 @@ func LoadNewRows(path string, predictors []string, levels map[string][]string, o
 		rs.Sheet = &read
 	}
 	return rs, nil
+}
+
+// newRowsDialectHint says, of a CSV file of new rows whose header does
+// not name a column and whose first lines look written in another
+// dialect than the one they are read in (guessDialect), that new rows are
+// read as data.delimiter and data.decimal say; "" otherwise.
+func newRowsDialectHint(head []byte, d Dialect) string {
+	want, ok := guessDialect(head, d)
+	if head == nil || !ok || want.delim() == d.delim() && want.DecimalComma == d.DecimalComma {
+		return ""
+	}
+	return fmt.Sprintf("; the file looks %s-separated with a decimal %s, but new rows are read as the plan's data.delimiter and data.decimal say, %s-separated with a decimal %s: write the file so (or, when the data are a workbook or a Parquet file, whose reading those keys do not change, set them: delimiter: %s, decimal: %s)",
+		want.DelimiterWord(), want.DecimalWord(), d.DelimiterWord(), d.DecimalWord(), want.DelimiterWord(), want.DecimalWord())
 }
