@@ -2,8 +2,10 @@ package render
 
 import (
 	"fmt"
+	"slices"
 	"strings"
 
+	"ordplan/plan/lock"
 	"ordplan/runner"
 )
 
@@ -24,13 +26,13 @@ func unusableFits(or *runner.OutcomeResult) [][2]string {
 	return out
 }
 
-func writeDecisionLog(d *doc, or *runner.OutcomeResult) {
+func writeDecisionLog(d *doc, st *lock.Status, or *runner.OutcomeResult) {
 	d.h(3, "Decision log")
 	for _, f := range unusableFits(or) {
 		d.p("- %s %s", f[0], mdText(f[1]))
 	}
 	for i, ro := range or.Rules {
-		d.p("**Rule %d, `%s`** (plan line %d). %s", i+1, ro.Rule.Kind, ro.Rule.Line, mdText(ro.Description))
+		d.p("**Rule %d, `%s`** (plan line %d). %s%s", i+1, ro.Rule.Kind, ro.Rule.Line, mdText(ro.Description), ruleSinceFrozen(st.RuleChanges(i)))
 		choosing := ro.Rule.Final()
 		var rows [][]string
 		for _, v := range ro.Verdicts {
@@ -59,4 +61,35 @@ func writeDecisionLog(d *doc, or *runner.OutcomeResult) {
 	default:
 		d.p("**Result:** %s.", or.Choice)
 	}
+}
+
+// ruleSinceFrozen says, after a rule's description in the decision log,
+// how the rule departs from the registered plan (lock.Status.RuleChanges:
+// added, moved, keys changed, with both values and the stated reason), or
+// "" when it is as registered.
+func ruleSinceFrozen(changes []lock.Explained) string {
+	if len(changes) == 0 {
+		return ""
+	}
+	var what, reasons []string
+	for _, c := range changes {
+		switch {
+		case c.From == lock.Absent && !strings.Contains(c.Path, "."):
+			what = append(what, "added after the plan was frozen")
+		case c.Moved != "" && len(c.Keys) == 0:
+			what = append(what, fmt.Sprintf("moved from %s after the plan was frozen, unchanged", mdCode(c.Moved)))
+		case c.Moved != "":
+			what = append(what, fmt.Sprintf("moved from %s and changed after the plan was frozen (%s)", mdCode(c.Moved), keyChanges(c.Keys)))
+		default:
+			what = append(what, fmt.Sprintf("changed after the plan was frozen (%s: %s → %s)", mdCode(c.Path), codeCell(c.From), codeCell(c.To)))
+		}
+		if t := strings.TrimSuffix(c.ReasonText(""), "."); t != "" && !slices.Contains(reasons, t) {
+			reasons = append(reasons, t)
+		}
+	}
+	why := "no stated reason"
+	if len(reasons) > 0 {
+		why = "stated reason: " + mdText(strings.Join(reasons, "; "))
+	}
+	return fmt.Sprintf(" **Not as registered:** %s; %s (see Deviations from the registered plan).", strings.Join(what, "; "), why)
 }

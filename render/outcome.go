@@ -25,7 +25,7 @@ func writeOutcome(d *doc, r *runner.Result, or *runner.OutcomeResult) {
 	writeModelTable(d, or, sampling)
 	writeOverallFit(d, or)
 	writeTests(d, r.Plan.Models.Backward(), or)
-	writeDecisionLog(d, or)
+	writeDecisionLog(d, r.Registration, or)
 	writeStability(d, r, or)
 	writeBoundaryEffects(d, r, or)
 	if or.Chosen == nil {

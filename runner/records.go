@@ -293,6 +293,10 @@ type RuleJSON struct {
 	Line        int       `json:"line"`
 	Description string    `json:"description"`
 	Verdicts    []Verdict `json:"verdicts"`
+	// SinceFrozen lists the changes from the plan's lock that touch this
+	// rule (lock.Status.RuleChanges): added, moved or changed after the
+	// plan was frozen, each with its stated reason.
+	SinceFrozen []lock.Explained `json:"since_frozen,omitempty"`
 }
 
 // BuildDecisions assembles the decisions record of a run.
@@ -339,8 +343,8 @@ func BuildDecisions(r *Result) *Decisions {
 		for _, tb := range or.Tests {
 			od.Tests = append(od.Tests, TestBlockJSON{tb.Approach, tb.Link, nonNil(tb.Global), nonNil(tb.PerVariable), nonNil(tb.Nested)})
 		}
-		for _, ro := range or.Rules {
-			od.Rules = append(od.Rules, RuleJSON{ro.Rule.Kind, ro.Rule.Line, ro.Description, nonNil(ro.Verdicts)})
+		for i, ro := range or.Rules {
+			od.Rules = append(od.Rules, RuleJSON{ro.Rule.Kind, ro.Rule.Line, ro.Description, nonNil(ro.Verdicts), r.Registration.RuleChanges(i)})
 		}
 		if or.Chosen != nil {
 			id := or.Chosen.ID

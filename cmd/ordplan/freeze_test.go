@@ -97,7 +97,20 @@ func TestFreezeRunMovedAndChangedRule(t *testing.T) {
 	if !strings.Contains(string(md), "in 1 key of the canonical form") || !strings.Contains(string(md), row) {
 		t.Errorf("report lacks the row\n%s\n%s", row, md)
 	}
+	// The decision log says it at the rule, and decisions.json at its record.
+	if !strings.Contains(string(md), "**Not as registered:** moved from `rules[1]` and changed after the plan was frozen (`reject_if_sparse.per_parameter`: `5` → `4`); stated reason: four, as the protocol says (see Deviations from the registered plan).") {
+		t.Errorf("decision log lacks the rule's departure:\n%s", md)
+	}
 	var dec struct {
+		Outcomes []struct {
+			Rules []struct {
+				Rule        string
+				SinceFrozen []struct {
+					Key       string
+					MovedFrom string `json:"moved_from"`
+				} `json:"since_frozen"`
+			} `json:"rules"`
+		} `json:"outcomes"`
 		Registration struct {
 			State   string `json:"state"`
 			Changes []struct {
@@ -116,6 +129,11 @@ func TestFreezeRunMovedAndChangedRule(t *testing.T) {
 	g := dec.Registration
 	if g.State != "deviations" || len(g.Changes) != 1 {
 		t.Fatalf("registration: %+v", g)
+	}
+	for i, ru := range dec.Outcomes[0].Rules {
+		if moved := i == 2; moved != (len(ru.SinceFrozen) == 1) || moved && (ru.SinceFrozen[0].Key != "rules[2]" || ru.SinceFrozen[0].MovedFrom != "rules[1]") {
+			t.Errorf("rule %d %s: since_frozen %+v", i, ru.Rule, ru.SinceFrozen)
+		}
 	}
 	c := g.Changes[0]
 	if c.Key != "rules[2]" || c.MovedFrom != "rules[1]" || c.Reason != "four, as the protocol says" || len(c.ChangedKeys) != 1 ||

@@ -113,3 +113,26 @@ func TestSensitivityChangesOfAnAnalysis(t *testing.T) {
 		t.Errorf("no status: %+v", got)
 	}
 }
+
+// RuleChanges takes, for the rule at an index of the plan, the rule added
+// there, moved there (changed or not) or a key of it changed; a rule
+// removed (named by its frozen index) is left out.
+func TestRuleChanges(t *testing.T) {
+	st := &Status{Lock: &File{}, Changes: []Explained{
+		{Change: Change{Path: "rules[0]", From: `{"a": 1}`, To: Absent}},
+		{Change: Change{Path: "rules[1].choose.by", From: `"aic"`, To: `"bic"`}},
+		{Change: Change{Path: "rules[2]", From: Absent, To: `{"b": 1}`}},
+		{Change: Change{Path: "rules[3]", From: `{"c": 1}`, To: `{"c": 1}`, Moved: "rules[4]"}},
+		{Change: Change{Path: "rules[10].x", From: "1", To: "2"}},
+	}}
+	for i, want := range []string{"", "rules[1].choose.by", "rules[2]", "rules[3]", ""} {
+		got := st.RuleChanges(i)
+		if want == "" && len(got) != 0 || want != "" && (len(got) != 1 || got[0].Path != want) {
+			t.Errorf("rule %d: %+v, want %q", i, got, want)
+		}
+	}
+	var none *Status
+	if got := none.RuleChanges(0); got != nil {
+		t.Errorf("no status: %+v", got)
+	}
+}

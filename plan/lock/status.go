@@ -305,6 +305,25 @@ func (s *Status) SensitivityChanges(i int) []Explained {
 	return out
 }
 
+// RuleChanges lists the changes from the lock that touch the plan's rule
+// at index i: the rule added since the plan was frozen, moved there
+// (changed or not: the order of the rules is part of what they decide),
+// or a key of it changed. A rule removed since is named by its index in
+// the frozen list and is left out. None without a lock.
+func (s *Status) RuleChanges(i int) []Explained {
+	if s == nil || s.Lock == nil {
+		return nil
+	}
+	item := fmt.Sprintf("rules[%d]", i)
+	var out []Explained
+	for _, c := range s.Changes {
+		if c.Path == item && c.To != Absent || strings.HasPrefix(c.Path, item+".") {
+			out = append(out, c)
+		}
+	}
+	return out
+}
+
 // SensitivityAdded says whether the plan's sensitivity analysis at index
 // i is new since the plan was frozen (changes: its SensitivityChanges):
 // the frozen plan had no such item, not a changed key of one it had.
