@@ -1,7 +1,6 @@
 package plan
 
 import (
-	"fmt"
 	"slices"
 	"strconv"
 	"strings"
@@ -314,11 +313,10 @@ func (d *decoder) checkWorkbookKeys(p *Plan) {
 // checkDialectKeys warns of data.delimiter given in a plan whose data
 // (data.file or data.parts, data.imputed) are workbooks or Parquet files,
 // which have no delimiter: it applies to CSV files only, so, at most, to
-// the new rows of inference.predict when they are one; and of
-// data.decimal: comma there with no level written with a comma
-// (commaLevels): it does not make the file's number cells numbers (they
-// are), but writes them with a comma where they are compared with declared
-// levels, and reads text cells written with one (D57).
+// the new rows of inference.predict when they are one. data.decimal is no
+// matter of this: under comma a workbook's or Parquet file's text cells
+// are read with a decimal comma, and its numbers are written with one
+// where they are compared with declared levels (D57).
 func (d *decoder) checkDialectKeys(p *Plan) {
 	files := append([]string{p.Data.File}, p.Data.Parts...)
 	if im := p.Data.Imputed; im != nil {
@@ -355,34 +353,6 @@ func (d *decoder) checkDialectKeys(p *Plan) {
 			d.warnAt("data.delimiter", "applies to CSV files only, and no file of this plan is one (the data file %s is %s, which has no delimiter): remove the key", quote(first), what)
 		}
 	}
-	if p.Data.Decimal == "comma" && d.clean("data.decimal") && !commaLevels(p) {
-		also := ""
-		if predict != "" {
-			also = fmt.Sprintf("; it also sets how the new rows of inference.predict (%s) write numbers", quote(predict))
-		}
-		d.warnAt("data.decimal", "the data file %s is %s, whose number cells are numbers whatever the decimal mark: under decimal: comma its cells of text are read with a decimal comma (\"2,5\"), and its numbers are written with one where they are compared with declared levels (levels: [\"2,5\"] for the number 2.5)%s; remove the key if the file holds its numbers as numbers and no level is written with a comma", quote(first), what, also)
-	}
-}
-
-// commaLevels reports whether a declared level or outcome category of p
-// is written with a comma, as data.decimal: comma writes a workbook's or
-// Parquet file's numbers for the comparison (checkDialectKeys).
-func commaLevels(p *Plan) bool {
-	for _, c := range p.Categorical {
-		for _, l := range c.Levels {
-			if strings.Contains(l, ",") {
-				return true
-			}
-		}
-	}
-	for _, o := range p.Outcomes {
-		for _, c := range o.Categories {
-			if strings.Contains(c, ",") {
-				return true
-			}
-		}
-	}
-	return false
 }
 
 // sourceKey gives the key of the first term that reads column col.

@@ -297,7 +297,9 @@ func catalogueData(t *testing.T, dir string) {
 		"inf.csv":       "y,a,b\n1,0.5,1\n2,0.7,1\n3,-Inf,0\n",
 		"overflow.csv":  "y,a,b\n1,0.5,1\n2,1e999,1\n3,0.1,0\n",
 		"underflow.csv": "y,a,b\n1,0.5,1\n2,1e-400,1\n3,0.1,0\n",
-		"trailhead.csv": "y,a,b,\n1,0.5,1\n2,0.2,1\n3,0.1,0\n", "dupname.csv": "y,a,a,b\n1,0.5,1,1\n", "noname.csv": "y,,b\n1,0.5,1\n",
+		"trailhead.csv": "y,a,b,\n1,0.5,1\n2,0.2,1\n3,0.1,0\n",
+		"dupname.csv":   "y,a,a,b\n1,0.5,1,1\n",
+		"noname.csv":    "y,,b\n1,0.5,1\n",
 		"onecat.csv":    "y,a,b\n2,0.5,1\n2,0.7,0\n2,0.1,1\n",
 		"labels.csv":    "y,a,b\nlow,0.5,1\nmedium,0.7,0\nhigh,0.1,1\n",
 		"three.csv":     "y,a,b\n1,0.5,1\n2,0.7,0\n3,0.1,1\n",
@@ -2140,11 +2142,11 @@ func catalogue(dir string) (items []badInput) {
 					t.Errorf("want %q in\n%s", want, errs)
 				}
 			}},
-		{id: "W39", name: "data.decimal: comma for a workbook, no level written with a comma", args: []string{"check"}, code: 0,
+		{id: "W39", name: "data.decimal: comma for a workbook: no warning, it reads text cells with a decimal comma", args: []string{"check"}, code: 0,
 			plan: edit("file: d.csv", "file: levels.xlsx\n  decimal: comma", "predictors: [a, b]", "predictors: [x]"), want: []string{"plan is valid"},
 			check: func(t *testing.T, dir, out, errs string) {
-				if want := `data.decimal: the data file "levels.xlsx" is a workbook, whose number cells are numbers whatever the decimal mark: under decimal: comma its cells of text are read with a decimal comma ("2,5"), and its numbers are written with one where they are compared with declared levels (levels: ["2,5"] for the number 2.5); remove the key if the file holds its numbers as numbers and no level is written with a comma`; !strings.Contains(errs, want) {
-					t.Errorf("want %q in\n%s", want, errs)
+				if strings.Contains(errs, "data.decimal") {
+					t.Errorf("a warning of data.decimal:\n%s", errs)
 				}
 			}},
 		{id: "X32", name: "a row of totals typed as numbers, labelled Total", args: fitArgs(d("typedtotals.xlsx"), "--predictors", "a,b"), code: 1,

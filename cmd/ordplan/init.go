@@ -20,7 +20,7 @@ func cmdInit(args []string, stdout, stderr io.Writer) int {
 	fs := newFlags("init", stderr)
 	dataFile := fs.String("data", "", "the data file (CSV text, an .xlsx workbook or a flat Parquet file): its columns are listed with the kind of values found")
 	delimiter := fs.String("delimiter", "", "the character between the CSV file's fields: comma, semicolon or tab (default: as the file's header shows)")
-	decimal := fs.String("decimal", "", "the decimal mark of the CSV file's numbers: point or comma (default: as the file's numbers show)")
+	decimal := fs.String("decimal", "", "the decimal mark of the CSV file's numbers, or of the numbers a workbook or Parquet file holds as text: point or comma (default: as the file's numbers show)")
 	sheet := fs.String("sheet", "", "for an .xlsx workbook: the worksheet to read, hidden or not (default: the one visible sheet with cells filled)")
 	headerRow := fs.Int("header-row", 1, "for an .xlsx workbook: the sheet row holding the column names")
 	header := fs.String("header", "", "the columns, comma separated, when there are no data yet")
@@ -134,8 +134,8 @@ func initDialect(file, delimiter, decimal, sheet string, headerRow int) (data.Di
 		return data.Dialect{}, false, fmt.Sprintf("--header-row must be a sheet row number, 1 or more (got %d)", headerRow)
 	case (sheet != "" || headerRow != 1) && !book:
 		return data.Dialect{}, false, "--sheet and --header-row are for .xlsx workbooks; the data file is not named *.xlsx"
-	case (delimiter != "" || decimal != "") && (book || data.IsParquet(file)):
-		return data.Dialect{}, false, "--delimiter and --decimal are for CSV text; the data file is a workbook or a Parquet file"
+	case delimiter != "" && (book || data.IsParquet(file)):
+		return data.Dialect{}, false, "--delimiter is for CSV text; the data file is a workbook or a Parquet file, which has no delimiter (--decimal comma reads its numbers held as text with a decimal comma)"
 	}
 	d, err := data.ParseDialect(delimiter, decimal)
 	if err != nil {

@@ -138,7 +138,7 @@ func TestInitFollowsDialect(t *testing.T) {
 	}
 	for _, c := range []struct{ args []string }{
 		{[]string{"--data", "d.csv", "--sheet", "x"}},
-		{[]string{"--data", "d.xlsx", "--decimal", "comma"}},
+		{[]string{"--data", "d.xlsx", "--delimiter", "semicolon"}},
 		{[]string{"--data", "d.xlsx", "--header-row", "0"}},
 	} {
 		c.args[1] = filepath.Join(dir, c.args[1])

@@ -502,14 +502,24 @@ func yamlList(xs []string) string {
 func writeDialect(w func(string, ...any), in Input) {
 	d := in.Dialect
 	switch {
-	case data.IsParquet(in.DataFile):
-	case data.IsWorkbook(in.DataFile):
-		if d.Sheet != "" {
-			w("  sheet: %s", yamlString(d.Sheet))
-		} else {
-			w("  # sheet: NAME        # the worksheet to read (default: the one visible sheet with cells filled)")
+	case data.IsParquet(in.DataFile) || data.IsWorkbook(in.DataFile):
+		if data.IsWorkbook(in.DataFile) {
+			if d.Sheet != "" {
+				w("  sheet: %s", yamlString(d.Sheet))
+			} else {
+				w("  # sheet: NAME        # the worksheet to read (default: the one visible sheet with cells filled)")
+			}
+			w("  header_row: %-10d # the sheet row holding the column names", max(d.HeaderRow, 1))
 		}
-		w("  header_row: %-10d # the sheet row holding the column names", max(d.HeaderRow, 1))
+		if d.DecimalComma {
+			w("  decimal: comma          # numbers held as text are written 1,5 (number cells are numbers either way)")
+		}
+		for _, c := range in.Columns {
+			if c.CommaNumber != "" {
+				w("  # EDIT: column %s holds numbers as text written with a decimal comma (%s): add decimal: comma here to read them as numbers (ordplan init --decimal comma)", c.Name, yamlString(c.CommaNumber))
+				break
+			}
+		}
 	default:
 		how := ""
 		if in.HaveData && in.DialectFound {

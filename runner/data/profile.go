@@ -58,6 +58,12 @@ type Profile struct {
 	// Nested: what a Parquet file's nested column is ("a list", "a map",
 	// "a struct", ...), which ordplan does not read; "" for any other.
 	Nested string
+	// CommaNumber, of a column of text read with a decimal point, every
+	// value of which (all of them listed: not Many) is a number written with
+	// a decimal comma or a whole number, is the first with a comma ("0,25"):
+	// numbers a workbook or Parquet file holds as text, which data.decimal:
+	// comma reads as numbers; "" otherwise.
+	CommaNumber string
 	// Merged are the ranges of merged cells (B3:B22) that cover cells of a
 	// workbook's column but for the one holding their value, in order:
 	// those cells hold no value, are not counted among the values, and a
@@ -226,6 +232,7 @@ func (r *reader) profile() ([]Profile, error) {
 		if p.Rows == p.Missing {
 			p.Numeric, p.Integer = false, false
 		}
+		p.CommaNumber = commaNumbers(p, d)
 		if p.Numeric {
 			// Booleans read as numbers are listed as the numbers they
 			// are read as, whatever the format (true, TRUE: 1).
@@ -270,4 +277,22 @@ func (r *reader) profile() ([]Profile, error) {
 		}
 	}
 	return out, nil
+}
+
+// commaNumbers is Profile.CommaNumber of p, profiled in dialect d.
+func commaNumbers(p *Profile, d Dialect) string {
+	if p.Numeric || p.Many || d.DecimalComma || len(p.Values) == 0 {
+		return ""
+	}
+	first := ""
+	comma := Dialect{DecimalComma: true}
+	for _, v := range p.Values {
+		if _, msg := comma.number(v); msg != "" {
+			return ""
+		}
+		if first == "" && strings.Contains(v, ",") {
+			first = v
+		}
+	}
+	return first
 }
