@@ -167,3 +167,11 @@ func TestColumnNameUnicodeForms(t *testing.T) {
 		t.Error("HasColumn compares the composed forms and nothing else")
 	}
 }
+
+// A name twice in a workbook's header names the two cells too.
+func TestWorkbookHeaderNameTwice(t *testing.T) {
+	_, err := readBytes(toBook(t, "y,a,b,a\n1,2,3,4\n2,3,4,5\n"), "h.xlsx", Options{Outcome: "y", Predictors: []string{"b"}})
+	if want := `h.xlsx:1: header: column name "a" appears twice (columns 2 and 4, cells B1 and D1): rename one, since a plan finds a column by its name`; err == nil || err.Error() != want {
+		t.Errorf("got %v, want %s", err, want)
+	}
+}

@@ -308,7 +308,11 @@ func (r *reader) names() ([]string, map[string]int, error) {
 			if names[j] != n {
 				return nil, nil, r.fail(line, "", "header: column names %s (column %d) and %s (column %d) are one name written in two Unicode forms (one with composed letters, one with letters and combining accents), which a plan cannot tell apart: rename one", quoteCell(names[j]), j+1, quoteCell(n), i+1)
 			}
-			return nil, nil, r.fail(line, "", "header: column name %s appears twice (columns %d and %d): rename one, since a plan finds a column by its name", quoteCell(n), j+1, i+1)
+			cells := ""
+			if a, b := cellName(r.cr, j), cellName(r.cr, i); a != "" && b != "" {
+				cells = ", cells " + a + " and " + b
+			}
+			return nil, nil, r.fail(line, "", "header: column name %s appears twice (columns %d and %d%s): rename one, since a plan finds a column by its name", quoteCell(n), j+1, i+1, cells)
 		}
 		where[ColumnKey(n)] = i
 		names[i] = n
