@@ -116,6 +116,11 @@ func TestReplayedMessagesCountedOnce(t *testing.T) {
 		}
 	}
 	check("first run", o)
+	// The worker's lines show the run as the coordinator's do: the batch
+	// id cut to 12 characters (its 64 made lines of 400).
+	if !strings.Contains(wlog.String(), "started ordplan.jobs."+id[:12]+".") || strings.Contains(wlog.String(), id[:13]) {
+		t.Errorf("the worker's lines do not show the batch as ordplan.jobs.%s.N:\n%s", id[:12], wlog)
+	}
 	if !strings.Contains(wlog.String(), "(delivery 2)") {
 		t.Errorf("the held job was not delivered again:\n%s", wlog)
 	}

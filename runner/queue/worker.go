@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"io"
 	"strconv"
+	"strings"
 	"sync"
 	"sync/atomic"
 	"time"
@@ -199,6 +200,19 @@ const (
 	headerRefusals = "Ordplan-Refusals"
 )
 
+// shownSubject is a job's subject as the worker's lines show it: the
+// batch id cut to its first 12 characters, as the coordinator's lines
+// show the run (ordplan.jobs.7e18ae67c4b6.3 for job 3 of run
+// 7e18ae67c4b6...), which the job's name follows.
+func shownSubject(subject string) string {
+	rest, ok := strings.CutPrefix(subject, JobSubject+".")
+	dot := strings.LastIndexByte(rest, '.')
+	if !ok || dot <= 12 {
+		return subject
+	}
+	return JobSubject + "." + rest[:12] + rest[dot:]
+}
+
 // otherBuildError is a job published by a coordinator of another build
 // than the worker's (Build): the worker refuses it (refuse), since its
 // fits might not be those of the build the run records.
@@ -241,7 +255,7 @@ func (w *Worker) refuse(ctx context.Context, msg jetstream.Msg, err error) {
 	var other *otherBuildError
 	otherBuild := errors.As(err, &other)
 	if !errors.Is(err, errSealMismatch) && !otherBuild {
-		w.logf("%s: job refused: %v", msg.Subject(), err)
+		w.logf("%s: job refused: %v", shownSubject(msg.Subject()), err)
 		msg.TermWithReason("job refused: " + err.Error())
 		return
 	}
@@ -262,20 +276,20 @@ func (w *Worker) refuse(ctx context.Context, msg jetstream.Msg, err error) {
 	switch {
 	case refusals >= MaxRefusals || delivered >= MaxDeliver:
 		w.logf("%s: job refused: %v; removed from the queue, refused %s by %s, delivered %d times: %s",
-			msg.Subject(), err, words.Count(refusals, "time", "times"), others, delivered, what)
+			shownSubject(msg.Subject()), err, words.Count(refusals, "time", "times"), others, delivered, what)
 		msg.TermWithReason("job refused: " + err.Error())
 		return
 	case delivered == 1:
 		how, aerr := w.putBack(msg, refusals)
 		if aerr == nil {
 			w.logf("%s: job refused: %v; put back on the queue for %s (%s, refusal %d): %s",
-				msg.Subject(), err, whom, how, refusals, what)
+				shownSubject(msg.Subject()), err, whom, how, refusals, what)
 			break
 		}
 		fallthrough
 	default:
 		w.logf("%s: job refused: %v; left on the queue for %s (delivery %d of at most %d, removed at the last): %s",
-			msg.Subject(), err, whom, delivered, MaxDeliver, what)
+			shownSubject(msg.Subject()), err, whom, delivered, MaxDeliver, what)
 		msg.NakWithDelay(refusedRetryDelay)
 	}
 	pause := refusedPause
@@ -338,7 +352,7 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 	if gaveBack > 0 {
 		back = ", after " + words.Count(gaveBack, "give-back by a stopped worker", "give-backs by stopped workers") + ", not counted"
 	}
-	w.logf("started %s %s (delivery %d%s)", msg.Subject(), t.jobName(), delivered, back)
+	w.logf("started %s %s (delivery %d%s)", shownSubject(msg.Subject()), t.jobName(), delivered, back)
 	start := time.Now()
 	stop := w.keepAlive(msg, delivered)
 	abort := w.abortContext()
@@ -346,7 +360,7 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 		stop()
 		w.abandoned.Add(1)
 		how := w.giveBack(msg, delivered, gaveBack)
-		w.logf("gave back %s %s unfinished (%s)", msg.Subject(), t.jobName(), how)
+		w.logf("gave back %s %s unfinished (%s)", shownSubject(msg.Subject()), t.jobName(), how)
 	}
 	if w.Delay > 0 && (w.DelayKind == "" || w.DelayKind == t.Kind) && !w.hold(abort, t) {
 		giveBack()
@@ -407,7 +421,7 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 		if r.Err != "" {
 			status = "error: " + r.Err
 		}
-		w.logf("done %s %s in %s: %s", msg.Subject(), t.jobName(), time.Since(start).Round(time.Millisecond), status)
+		w.logf("done %s %s in %s: %s", shownSubject(msg.Subject()), t.jobName(), time.Since(start).Round(time.Millisecond), status)
 	}
 	if err := msg.DoubleAck(sctx); err != nil {
 		w.logf("%s: acknowledging: %v", t.jobName(), err)
