@@ -175,3 +175,29 @@ func TestWorkbookHeaderNameTwice(t *testing.T) {
 		t.Errorf("got %v, want %s", err, want)
 	}
 }
+
+// A first line "sep=;" (a spreadsheet program's line naming the
+// delimiter) is refused, saying what it is; a title line above the header
+// is named as a possible title where the header has one field and the next
+// line more.
+func TestSepAndTitleLines(t *testing.T) {
+	opt := Options{Outcome: "y", Predictors: []string{"a"}}
+	for in, want := range map[string]string{
+		"sep=;\ny;a\n1;2\n":             `t.csv:1: line 1 is "sep=;", the line a spreadsheet program writes to name the delimiter, not the header: delete the line, so that the header is the first line, and read the file as semicolon-separated (data.delimiter: semicolon; ordplan fit and ordplan init: --delimiter semicolon)`,
+		"\uFEFFsep=,\r\ny,a\r\n1,2\r\n": `t.csv:1: line 1 is "sep=,", the line a spreadsheet program writes to name the delimiter, not the header: delete the line, so that the header is the first line`,
+		"Export 2024\ny,a\n1,2\n":       `t.csv: column "y": outcome column not found in the header; available columns: "Export 2024"; the first line holds one field and the next 2: if the first line is a title above the table, delete it (a CSV file's header is its first line)`,
+	} {
+		_, err := Read(strings.NewReader(in), "t.csv", opt)
+		if err == nil || err.Error() != want {
+			t.Errorf("%q: got %v, want %s", in, err, want)
+		}
+	}
+	path := filepath.Join(t.TempDir(), "t.csv")
+	os.WriteFile(path, []byte("Export 2024\ny,a\n1,2\n"), 0o644)
+	if _, err := ProfileFile(path, nil, Dialect{}); err == nil || !strings.HasSuffix(err.Error(), "t.csv:2: row has 2 fields but the header has 1; the first line holds one field and the next 2: if the first line is a title above the table, delete it (a CSV file's header is its first line)") {
+		t.Errorf("profile of a title line: %v", err)
+	}
+	if _, err := Read(strings.NewReader("y\n1\n2\n"), "t.csv", Options{Outcome: "y"}); err != nil {
+		t.Errorf("a file of one column: %v", err)
+	}
+}

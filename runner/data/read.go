@@ -155,6 +155,9 @@ func (r *reader) csvErr(err error, rec []string) *Error {
 	if errors.As(err, &pe) {
 		if errors.Is(pe.Err, csv.ErrFieldCount) {
 			e := r.fail(pe.StartLine, "", "row has %d fields but the header has %d%s", len(rec), r.width, r.unnamedTail(len(rec)))
+			if pe.StartLine == r.headerLine+1 {
+				e.Msg += r.titleHint()
+			}
 			e.Err = err
 			return e
 		}
@@ -172,6 +175,47 @@ func (r *reader) csvErr(err error, rec []string) *Error {
 		return e
 	}
 	return &Error{File: r.file, Msg: "cannot read file: " + osReason(err), Err: err}
+}
+
+// sepLine refuses a CSV file whose first line (head, its first bytes) is
+// "sep=;", the line a spreadsheet program writes to name the delimiter:
+// read as the header it hides the real one. "" for any other file.
+func sepLine(head []byte, d Dialect) string {
+	head = bytes.TrimPrefix(head, utf8BOM)
+	first, _, _ := bytes.Cut(head, []byte("\n"))
+	first = bytes.TrimSuffix(first, []byte("\r"))
+	if len(first) != 5 || !bytes.HasPrefix(bytes.ToLower(first), []byte("sep=")) {
+		return ""
+	}
+	msg := fmt.Sprintf("line 1 is %s, the line a spreadsheet program writes to name the delimiter, not the header: delete the line, so that the header is the first line", quoteCell(string(first)))
+	if word, ok := map[byte]string{',': "comma", ';': "semicolon", '\t': "tab"}[first[4]]; !ok {
+		msg += " (ordplan reads files separated by commas, semicolons or tabs)"
+	} else if want, err := ParseDialect(word, ""); err == nil && want.delim() != d.delim() {
+		msg += fmt.Sprintf(", and read the file as %s-separated (data.delimiter: %s; ordplan fit and ordplan init: --delimiter %s)", want.DelimiterWord(), want.DelimiterWord(), want.DelimiterWord())
+	}
+	return msg
+}
+
+// titleHint says, of a CSV file whose header line is one field while the
+// line after it has more, that the first line may be a title above the
+// table; "" otherwise.
+func (r *reader) titleHint() string {
+	if r.head == nil || r.width != 1 {
+		return ""
+	}
+	_, rest, ok := bytes.Cut(bytes.TrimPrefix(r.head, utf8BOM), []byte("\n"))
+	if !ok {
+		return ""
+	}
+	next, _, _ := bytes.Cut(rest, []byte("\n"))
+	cr := csv.NewReader(bytes.NewReader(next))
+	cr.Comma = r.opt.Dialect.delim()
+	cr.LazyQuotes = true
+	rec, err := cr.Read()
+	if err != nil || len(rec) < 2 {
+		return ""
+	}
+	return fmt.Sprintf("; the first line holds one field and the next %d: if the first line is a title above the table, delete it (a CSV file's header is its first line)", len(rec))
 }
 
 // unnamedTail says, of a row of n fields that the header outnumbers by
@@ -244,6 +288,9 @@ func (r *reader) header(cols []usedCol) error {
 			// A header read whole as one name is most often a file in
 			// another dialect than the one asked for: say which.
 			e := r.dialectHint(r.fail(0, cols[i].name, "%s", notInHeader(cols[i].role.String(), cols[i].name, names)))
+			if !strings.Contains(e.Msg, "; the file looks") {
+				e.Msg += r.titleHint()
+			}
 			if sr, ok := r.cr.(*sheetRecords); ok {
 				e.Msg += fmt.Sprintf("; the header was read from row %d of the sheet %s: if the column names are in another row, give it with data.header_row (ordplan fit and ordplan init: --header-row)", sr.headerLine, quoteCell(sr.read.Name))
 			}
@@ -286,6 +333,9 @@ func (r *reader) names() ([]string, map[string]int, error) {
 		return nil, nil, r.dialectHint(r.csvErr(err, hdr))
 	}
 	line, _ := r.cr.FieldPos(0)
+	if msg := sepLine(r.head, r.opt.Dialect); msg != "" {
+		return nil, nil, r.fail(line, "", "%s", msg)
+	}
 	r.width = len(hdr)
 	for len(hdr) > 1 && strings.TrimSpace(hdr[len(hdr)-1]) == "" {
 		hdr = hdr[:len(hdr)-1]
