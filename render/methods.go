@@ -263,7 +263,11 @@ func registeredAs(r *runner.Result) string {
 	if before > 0 {
 		s += fmt.Sprintf("; the output folder held %s of the plan made before it was frozen, whose results existed then, listed at the head of the report", words.Count(before, "run", "runs"))
 	}
-	if n := len(r.EarlierRegistered); n > 0 {
+	switch n := len(r.EarlierRegistered); {
+	case n == 0 || r.Registration == nil:
+	case r.Registration.State == lock.StateMatches:
+		s += fmt.Sprintf("; the output folder held %s of the same plan on other data, made before this one", words.Count(n, "run", "runs"))
+	default:
 		s += fmt.Sprintf("; the output folder held %s of the registered plan unchanged, whose results existed before the plan was changed, so the departures may have been chosen after seeing them", words.Count(n, "run", "runs"))
 	}
 	return s

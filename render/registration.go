@@ -95,6 +95,9 @@ func writeLockStatus(d *doc, st *lock.Status, version string, w lockWords, earli
 		return
 	case lock.StateMatches:
 		d.p("**Registered plan: matches** (%s). %s", frozen(), w.matches)
+		if w.folder {
+			writeEarlierLooks(d, earlier)
+		}
 		writeUnusedDeviations(d, st)
 		return
 	case lock.StateUnexplained:
@@ -286,6 +289,36 @@ func writeEarlierRegistered(d *doc, earlier []runner.EarlierRun) {
 	d.p("%s: %s existed before this run departed from the plan, so the deviations above may have been chosen after seeing them. %s named by the SHA-256 of %s decisions.json (in this folder's run.json or under earlier/):",
 		lead, sing(one, "its results", "their results"), sing(one, "It is", "They are"), sing(one, "its", "their"))
 	d.list(items)
+}
+
+// writeEarlierLooks names the runs of the registered plan, unchanged,
+// on other data, that the output folder held when this run of the same
+// plan was made (runner.EarlierRegisteredRuns of a plan matching its
+// lock): the analysis was run before, on other data, perhaps fewer rows
+// of the same study, and its results existed before these.
+func writeEarlierLooks(d *doc, earlier []runner.EarlierRun) {
+	if len(earlier) == 0 {
+		return
+	}
+	items := make([]string, len(earlier))
+	same := 0
+	for i, e := range earlier {
+		items[i] = earlierRunItem(e, &same)
+	}
+	lead, one := heldRuns(len(earlier), same, "of this registered plan on other data")
+	d.p("%s: %s of the same analysis existed before this run. If these data extend those (rows added as the study went on), the data have been analysed more than once, and the p-values and intervals below make no allowance for it (see Assumptions and limits). %s named by the SHA-256 of %s decisions.json (in this folder's run.json or under earlier/):",
+		lead, sing(one, "its results", "their results"), sing(one, "It is", "They are"), sing(one, "its", "their"))
+	d.list(items)
+}
+
+// earlierLooksSentence is the limit of a run of the registered plan whose
+// output folder held runs of it on other data (writeEarlierLooks), or "".
+func earlierLooksSentence(r *runner.Result) string {
+	st := r.Registration
+	if st == nil || st.State != lock.StateMatches || len(r.EarlierRegistered) == 0 || r.Simulated != nil {
+		return ""
+	}
+	return fmt.Sprintf("This output folder held %s of the same registered plan on other data (listed at the head of the report). If these data extend those, this is another look at accumulating data: the p-values and intervals here make no allowance for repeated looks, and a result that crosses a threshold only at a later look is weaker evidence than its p-value says.", words.Count(len(r.EarlierRegistered), "run", "runs"))
 }
 
 // writeUnderEarlierLocks names the runs the output folder held that were

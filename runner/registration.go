@@ -24,8 +24,10 @@ type RegistrationRecord struct {
 	// ReplacedLocks are the earlier locks of the plan that freeze
 	// --replace kept beside its lock.
 	ReplacedLocks []lock.Replaced `json:"replaced_locks,omitempty"`
-	// EarlierRegistered: the earlier runs of the registered plan,
-	// unchanged, in the output folder of a run that departs from it.
+	// EarlierRegistered: the earlier runs of the registered plan
+	// unchanged in the output folder (EarlierRegisteredRuns): of a run
+	// that departs from it, every one; of a run that matches it, those
+	// on other data.
 	EarlierRegistered []EarlierRun `json:"earlier_registered_runs,omitempty"`
 	// UnderEarlierLocks (JSON runs_outside_this_lock): the earlier runs in the output folder made under
 	// another lock of the plan than its lock now (one freeze --replace
@@ -49,20 +51,24 @@ type EarlierRun struct {
 
 // EarlierRegisteredRuns picks, from the run records an output folder
 // holds, the runs of the registered plan unchanged (made by run, the
-// plan matching the same lock) when st departs from that lock; dataHash
-// is this run's data. Sorted by their decisions' hash, each once, so the
-// list is the same wherever the folder keeps them.
+// plan matching the same lock): when st departs from that lock, every
+// one (results that existed before the deviations were run); when st
+// matches it, those on other data than dataHash, this run's (results of
+// the same analysis on other data, such as fewer rows: an earlier look).
+// Sorted by their decisions' hash, each once, so the list is the same
+// wherever the folder keeps them.
 func EarlierRegisteredRuns(st *lock.Status, dataHash string, records []RunRecord) []EarlierRun {
-	if st == nil || st.Lock == nil || (st.State != lock.StateDeviations && st.State != lock.StateUnexplained) {
+	if st == nil || st.Lock == nil || (st.State != lock.StateDeviations && st.State != lock.StateUnexplained && st.State != lock.StateMatches) {
 		return nil
 	}
+	matches := st.State == lock.StateMatches
 	var out []EarlierRun
 	for _, rec := range records {
 		g := rec.Registration
 		if g == nil || g.State != lock.StateMatches || g.CanonicalSHA256 != st.Lock.SHA256 {
 			continue
 		}
-		if e, ok := earlierRun(rec, dataHash); ok && !slices.ContainsFunc(out, func(o EarlierRun) bool { return o.DecisionsSHA256 == e.DecisionsSHA256 }) {
+		if e, ok := earlierRun(rec, dataHash); ok && !(matches && e.SameData) && !slices.ContainsFunc(out, func(o EarlierRun) bool { return o.DecisionsSHA256 == e.DecisionsSHA256 }) {
 			out = append(out, e)
 		}
 	}

@@ -41,9 +41,10 @@ type Result struct {
 	// Registration is the plan compared with its lock (nil: not compared).
 	Registration *lock.Status
 	// EarlierRegistered are the earlier runs of the registered plan,
-	// unchanged, that the output folder holds, when this run departs from
-	// it (EarlierRegisteredRuns): results of the registered plan existed
-	// before the deviations were run.
+	// unchanged, that the output folder holds (EarlierRegisteredRuns):
+	// when this run departs from it, results of the registered plan that
+	// existed before the deviations were run; when it matches it, those
+	// on other data (an earlier look at the study's data).
 	EarlierRegistered []EarlierRun
 	// UnderEarlierLocks are the earlier runs that the output folder holds
 	// made under another lock of the plan than its lock now

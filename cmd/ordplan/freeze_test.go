@@ -212,6 +212,53 @@ func TestDeviationsNameEarlierRegisteredRuns(t *testing.T) {
 	}
 }
 
+// A run of the registered plan, unchanged, whose output folder held runs
+// of it on other data (more rows arrived) says so at its head, in its
+// limits and methods, and in decisions.json: the data were analysed
+// before; a rerun on the same data is not such a run, and a rerun writes
+// the same bytes.
+func TestEarlierLooksOfTheRegisteredPlan(t *testing.T) {
+	dir, planPath, _ := deviationStudy(t)
+	if _, errs, code := runCLI("freeze", planPath); code != 0 {
+		t.Fatalf("freeze: %d %s", code, errs)
+	}
+	o := filepath.Join(dir, "out")
+	run := func() (string, string) {
+		if out, errs, code := runCLI("run", planPath, "--out", o, "--quiet"); code != 0 {
+			t.Fatalf("run: %d %s %s", code, out, errs)
+		}
+		md, _ := os.ReadFile(filepath.Join(o, "report.md"))
+		dec, _ := os.ReadFile(filepath.Join(o, "decisions.json"))
+		return string(md), string(dec)
+	}
+	_, first := run()
+	if md, dec := run(); strings.Contains(md, "on other data") || strings.Contains(dec, "earlier_registered_runs") {
+		t.Errorf("a rerun on the same data names an earlier look:\n%s", md)
+	}
+	sum := sha256.Sum256([]byte(first))
+	csv := filepath.Join(dir, "d.csv")
+	b, _ := os.ReadFile(csv)
+	lines := strings.SplitAfter(string(b), "\n")
+	os.WriteFile(csv, []byte(string(b)+strings.Join(lines[1:31], "")), 0o644) // 30 rows more
+	md, dec := run()
+	for _, s := range []string{
+		"**This output folder already held 1 run of this registered plan on other data**: its results of the same analysis existed before this run.",
+		"- decisions.json sha256 `" + hex.EncodeToString(sum[:])[:12] + "`, on other data",
+		"- This output folder held 1 run of the same registered plan on other data (listed at the head of the report). If these data extend those, this is another look at accumulating data",
+		"; the output folder held 1 run of the same plan on other data, made before this one)",
+	} {
+		if !strings.Contains(md, s) {
+			t.Errorf("report.md lacks %q:\n%s", s, md)
+		}
+	}
+	if !strings.Contains(dec, `"decisions_sha256": "`+hex.EncodeToString(sum[:])+`"`) || !strings.Contains(dec, `"same_data": false`) {
+		t.Errorf("decisions.json lacks the earlier run:\n%.1500s", dec)
+	}
+	if md2, dec2 := run(); md2 != md || dec2 != dec {
+		t.Error("a rerun changed the report or decisions.json")
+	}
+}
+
 // A plan frozen, run, frozen anew with a change (freeze --replace) and run
 // again in the same folder: the runs made under the earlier lock are not
 // runs of the registered plan. The second run's stdout, report and
