@@ -62,4 +62,27 @@ func TestHeldSharesSaid(t *testing.T) {
 	if n := strings.Count(md, held); n != 1 {
 		t.Errorf("with the profile setting treated to 1 the held share is said %d times, want 1 (at the means only)", n)
 	}
+	// The same column coded 1 and 2 is held at its mean, 1.4, a value no
+	// row has either: said alike, with its values; and as the focus of
+	// the predictions it is drawn at its two values, as a 0/1 focus at 0
+	// and 1, not over evenly spaced values between them.
+	lines := strings.Split(strings.TrimSpace(b.String()), "\n")
+	for i := range lines {
+		if i == 0 {
+			lines[i] = strings.Replace(lines[i], "treated", "arm", 1)
+		} else {
+			lines[i] = lines[i][:len(lines[i])-1] + string(lines[i][len(lines[i])-1]+1)
+		}
+	}
+	if err := os.WriteFile(filepath.Join(dir, "d.csv"), []byte(strings.Join(lines, "\n")+"\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	src := strings.Replace(plan("  marginal_effects: [average, means]\n"), "predictors: [site, x, treated]", "predictors: [site, x, arm]", 1)
+	md = string(renderSource(t, dir, src, 0)["report.md"])
+	hasAll(t, "report.md, a column of 1 and 2", md,
+		"At this point the column `arm`, which holds only 1 and 2, is held at its mean (arm 1.4): no row of the data has such a value, so these effects are those of no one who exists and, the model not being linear, not the mix of the effects at its two values in those shares either (the effect of such a column itself sets it to its lower and its higher value at this point)",
+		"In these predictions the column `arm`, which holds only 1 and 2, is held at its mean (arm 1.4)",
+		"To compare the predictions at each value of such a column, declare it under categorical")
+	md = string(renderSource(t, dir, strings.Replace(src, "rules:", "report: {focus_predictor: arm}\nrules:", 1), 0)["report.md"])
+	hasAll(t, "report.md, a focus of 1 and 2", md, "when `arm` is 1 and 2, with", "| 1.00 |", "| 2.00 |", "each bar is the whole distribution at one value")
 }

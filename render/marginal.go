@@ -229,8 +229,8 @@ func profileOutsideNote(d *doc, or *runner.OutcomeResult, what string) {
 
 // heldSharesNote says, beside effects (what: "effects", "differences")
 // taken at the one point of set (at the means, at the plan's profile),
-// which columns holding only 0 and 1 that point holds at their mean, the
-// share of rows at 1 (runner.OutcomeResult.SharesAt): a value no row has,
+// which columns taking two values that point holds at their mean, for a
+// 0/1 column the share of rows at 1 (runner.OutcomeResult.SharesAt): a value no row has,
 // so the effects there are of no one who exists and, the model not being
 // linear, not the mix of those at 0 and at 1 either. It names the average
 // marginal effects as the reading to prefer, and how to ask for them when
@@ -240,7 +240,7 @@ func heldSharesNote(d *doc, or *runner.OutcomeResult, set runner.MarginalSet, wh
 	if len(names) == 0 {
 		return
 	}
-	cols, it := heldColumns(names)
+	cols, it, at, zeroOne := heldColumns(or, names)
 	average := "The average marginal effects above"
 	switch i := slices.IndexFunc(or.Marginal, func(m runner.MarginalSet) bool { return m.Kind == "average" }); {
 	case what == "differences":
@@ -250,10 +250,13 @@ func heldSharesNote(d *doc, or *runner.OutcomeResult, set runner.MarginalSet, wh
 	case i > slices.IndexFunc(or.Marginal, func(m runner.MarginalSet) bool { return m.Kind == set.Kind }):
 		average = "The average marginal effects below"
 	}
-	own, each := " (the effect of such a column itself sets it to 0 and to 1 at this point)", "effect"
+	own, each, kind := " (the effect of such a column itself sets it to 0 and to 1 at this point)", "effect", "0/1 predictor and wherever 0/1 columns would otherwise be held at a share"
+	if !zeroOne {
+		own, kind = " (the effect of such a column itself sets it to its lower and its higher value at this point)", "predictor taking two values and wherever such columns would otherwise be held at their mean"
+	}
 	if what == "differences" {
 		own, each = "", "difference"
 	}
-	d.p("At this point the %s held at %s (%s): no row of the data has such a value, so these %s are those of no one who exists and, the model not being linear, not the mix of the %s at 0 and at 1 in those shares either%s. %s, each row's own %s at its own values averaged over the rows used, are the reading to prefer for a 0/1 predictor and wherever 0/1 columns would otherwise be held at a share.",
-		cols, it, mdText(strings.Join(held, ", ")), what, what, own, average, each)
+	d.p("At this point the %s held at %s (%s): no row of the data has such a value, so these %s are those of no one who exists and, the model not being linear, not the mix of the %s %s in those shares either%s. %s, each row's own %s at its own values averaged over the rows used, are the reading to prefer for a %s.",
+		cols, it, mdText(strings.Join(held, ", ")), what, what, at, own, average, each, kind)
 }

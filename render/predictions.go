@@ -58,12 +58,17 @@ func heldShare(d *doc, r *runner.Result, or *runner.OutcomeResult, fixed map[str
 	if err != nil {
 		return
 	}
-	names, held := pf.HeldZeroOne()
+	names, held := pf.HeldTwoValued()
 	if len(names) == 0 {
 		return
 	}
-	cols, it := heldColumns(names)
-	s := fmt.Sprintf("In these predictions the %s held at %s (%s): no person (no row of the data) has such a value, so the predictions are for no one who exists, and, the model not being linear, they are not the mix of the predictions at 0 and at 1 in those shares either.", cols, it, mdText(strings.Join(held, ", ")))
+	cols, it, at, zeroOne := heldColumns(or, names)
+	s := fmt.Sprintf("In these predictions the %s held at %s (%s): no person (no row of the data) has such a value, so the predictions are for no one who exists, and, the model not being linear, they are not the mix of the predictions %s in those shares either.", cols, it, mdText(strings.Join(held, ", ")), at)
+	if !zeroOne {
+		// report.panels_by draws panels of a 0/1 column only.
+		d.p("%s To compare the predictions at each value of such a column, declare it under categorical with its two values as levels, for a panel per level in report.panels_by, or code it 0 and 1.", s)
+		return
+	}
 	var chance []string
 	if r.Plan != nil {
 		for _, n := range names {
@@ -145,7 +150,7 @@ func writePredictionPanel(d *doc, r *runner.Result, or *runner.OutcomeResult, fi
 	if pf.Categorical {
 		span = "goes over its levels"
 	} else if pf.binary {
-		span = "is 0 and 1"
+		span = fmt.Sprintf("is %s and %s", numfmt.Num(pf.Min), numfmt.Num(pf.Max))
 	} else if len(xs) == 1 {
 		span = "is at its only value in the data"
 	}
@@ -402,16 +407,30 @@ func axisName(name string) string {
 	return fitWidth(name, chartTextWidth-40, widthAt(12))
 }
 
-// heldColumns names columns holding only 0 and 1 that a point holds at
+// heldColumns names the columns taking two values that a point holds at
 // their mean, for a sentence: "column `pilot`, which holds only 0 and 1,
-// is" held at "its mean, the share of rows at 1" (plural for several).
-func heldColumns(names []string) (cols, it string) {
-	var code []string
+// is" held at "its mean, the share of rows at 1" (plural for several), or,
+// when some column is not 0/1, "column `sex12`, which holds only 1 and 2,
+// is" held at "its mean"; at, where the predictions or effects of such a
+// column are ("at 0 and at 1", "at its two values"); zeroOne, whether
+// every column holds 0 and 1.
+func heldColumns(or *runner.OutcomeResult, names []string) (cols, it, at string, zeroOne bool) {
+	var code, valued []string
+	zeroOne = true
 	for _, n := range names {
+		lo, hi, _ := or.TwoValues(n)
+		zeroOne = zeroOne && lo == 0 && hi == 1
 		code = append(code, mdCode(n))
+		valued = append(valued, fmt.Sprintf("%s (%s and %s)", mdCode(n), numfmt.Num(lo), numfmt.Num(hi)))
 	}
-	if len(names) > 1 {
-		return "columns " + words.AndList(code) + ", which hold only 0 and 1, are", "their means, the shares of rows at 1"
+	switch {
+	case zeroOne && len(names) > 1:
+		return "columns " + words.AndList(code) + ", which hold only 0 and 1, are", "their means, the shares of rows at 1", "at 0 and at 1", true
+	case zeroOne:
+		return "column " + code[0] + ", which holds only 0 and 1, is", "its mean, the share of rows at 1", "at 0 and at 1", true
+	case len(names) > 1:
+		return "columns " + words.AndList(valued) + ", which hold only two values each, are", "their means", "at their two values", false
 	}
-	return "column " + code[0] + ", which holds only 0 and 1, is", "its mean, the share of rows at 1"
+	lo, hi, _ := or.TwoValues(names[0])
+	return fmt.Sprintf("column %s, which holds only %s and %s, is", code[0], numfmt.Num(lo), numfmt.Num(hi)), "its mean", "at its two values", false
 }

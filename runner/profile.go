@@ -22,7 +22,7 @@ type Profile struct {
 	Focus       string
 	Categorical bool     // the focus is categorical: the grid is its levels
 	Levels      []string // coded levels of a categorical focus
-	Binary      bool     // a numeric focus taking only 0 and 1
+	Binary      bool     // a numeric focus taking two values (0 and 1, 1 and 2: valuePair), Min and Max
 	Min, Max    float64
 	or          *OutcomeResult
 	s           int       // the focus column
@@ -80,9 +80,8 @@ func (or *OutcomeResult) NewProfile(focus string, fixed map[string]string) (*Pro
 	if j < 0 {
 		return nil, fmt.Errorf("the focus predictor %q is not a column of the data", focus)
 	}
-	var other int
-	pf.Min, pf.Max, other = columnSpan(ref, j)
-	pf.Binary = other < 0
+	pf.Min, pf.Max, _ = columnSpan(ref, j)
+	pf.Binary = columnValues(ref.X, ref.K, j).Two()
 	if or.Data.N == 0 || math.IsInf(pf.Min, 1) {
 		return nil, fmt.Errorf("no observations to average over")
 	}
@@ -145,13 +144,26 @@ func (or *OutcomeResult) PanelValues(by string) (values []string, zeroOne bool) 
 	return nil, false
 }
 
-// HeldZeroOne lists the numeric columns the profile holds at their mean
-// although they hold only 0 and 1 in the data (not the focus, not a
-// column the caller fixed), each with that mean, the share of rows at 1
-// ("pilot 0.335063"): a value no single row has.
-func (pf *Profile) HeldZeroOne() (names, held []string) {
+// TwoValues reports whether numeric column name takes two values in the
+// data as read (AsRead: on imputed data the observed values), and which,
+// the lower first (the two-values rule, valuePair).
+func (or *OutcomeResult) TwoValues(name string) (lo, hi float64, ok bool) {
+	ref := or.AsRead()
+	j := slices.Index(ref.Predictors, name)
+	if j < 0 || or.Design != nil && slices.ContainsFunc(or.Design.Sources, func(s design.Source) bool { return s.Name == name && s.Cat != nil }) {
+		return 0, 0, false
+	}
+	p := columnValues(ref.X, ref.K, j)
+	return p.v[0], p.v[1], p.Two()
+}
+
+// HeldTwoValued lists the numeric columns the profile holds at their mean
+// although they take two values in the data (TwoValues; not the focus,
+// not a column the caller fixed), each with that mean ("pilot 0.335063",
+// for a 0/1 column the share of rows at 1): a value no single row has.
+func (pf *Profile) HeldTwoValued() (names, held []string) {
 	for s, src := range pf.or.Design.Sources {
-		if s == pf.s || src.Cat != nil || slices.Contains(pf.fixed, s) || !pf.or.zeroOne(src.Name) {
+		if _, _, two := pf.or.TwoValues(src.Name); s == pf.s || src.Cat != nil || slices.Contains(pf.fixed, s) || !two {
 			continue
 		}
 		names = append(names, src.Name)
@@ -161,7 +173,7 @@ func (pf *Profile) HeldZeroOne() (names, held []string) {
 }
 
 // Grid gives the focus values: the level indices of a categorical focus,
-// 0 and 1 for a 0/1 focus, else evenly spaced values (as many as points)
+// its two values for a focus taking two (0 and 1, 1 and 2), else evenly spaced values (as many as points)
 // from the smallest to the largest in the data.
 func (pf *Profile) Grid(points int) []float64 {
 	switch {
@@ -172,7 +184,7 @@ func (pf *Profile) Grid(points int) []float64 {
 		}
 		return out
 	case pf.Binary:
-		return []float64{0, 1}
+		return []float64{pf.Min, pf.Max}
 	case pf.Min == pf.Max || points < 2:
 		return []float64{pf.Min}
 	}
@@ -319,18 +331,21 @@ func (or *OutcomeResult) ensureDesign() error {
 	return nil
 }
 
-// SharesAt lists the numeric columns that hold only 0 and 1 in the data
-// and lie strictly between 0 and 1 in point, the raw row of marginal
-// effects or differences at one point (MarginalSet.Point): the columns
-// the means, or the predictors a profile does not set, hold at the share
-// of rows at 1, a value no single row has. Each with that value, as
-// HeldZeroOne writes them.
+// SharesAt lists the numeric columns that take two values in the data
+// (TwoValues) and lie strictly between them in point, the raw row of
+// marginal effects or differences at one point (MarginalSet.Point): the
+// columns the means, or the predictors a profile does not set, hold at
+// their mean (for a 0/1 column the share of rows at 1), a value no single
+// row has. Each with that value, as HeldTwoValued writes them.
 func (or *OutcomeResult) SharesAt(point []float64) (names, held []string) {
 	if or.Design == nil {
 		return nil, nil
 	}
 	for s, src := range or.Design.Sources {
-		if s >= len(point) || src.Cat != nil || !(point[s] > 0 && point[s] < 1) || !or.zeroOne(src.Name) {
+		if s >= len(point) || src.Cat != nil {
+			continue
+		}
+		if lo, hi, two := or.TwoValues(src.Name); !two || !(point[s] > lo && point[s] < hi) {
 			continue
 		}
 		names = append(names, src.Name)

@@ -211,10 +211,10 @@ type valuePair struct {
 	v [2]float64
 }
 
-// add counts value x.
+// add counts value x (a missing value, NaN, is none).
 func (p *valuePair) add(x float64) {
 	switch {
-	case p.n >= 3 || p.n >= 1 && x == p.v[0] || p.n == 2 && x == p.v[1]:
+	case math.IsNaN(x) || p.n >= 3 || p.n >= 1 && x == p.v[0] || p.n == 2 && x == p.v[1]:
 	case p.n == 2:
 		p.n = 3
 	case p.n == 1:
