@@ -46,29 +46,9 @@ func partsOfColumns(or *runner.OutcomeResult) []string {
 }
 
 func partOfColumnSentence(or *runner.OutcomeResult, text string, c runner.ColumnTerms) string {
-	var others, whole []string
-	for _, t := range c.Terms {
-		if !slices.Contains(c.Named, t) {
-			others = append(others, mdText(t))
-		}
-		whole = append(whole, t+" = 0")
-	}
-	verb := "is"
-	if len(others) > 1 {
-		verb = "are"
-	}
-	term, adds := "term", "adds"
-	if len(c.Named) > 1 {
-		term, adds = "terms", "add"
-	}
-	named := words.AndList(words.Each(c.Named, mdText))
-	s := fmt.Sprintf("%s restricts %s %s, which data column %s makes together with %s: it asks what %s %s while %s %s held fixed, which cannot happen as the column changes, and not whether column %s is associated with the outcome.",
-		mdCode(text), term, named, mdText(c.Column), words.AndList(others), named, adds, words.AndList(others), verb, mdText(c.Column))
 	label := runner.ColumnLabel(c.Column)
-	if slices.ContainsFunc(or.TermTests, func(t runner.TermTest) bool { return t.Term == label }) {
-		return s + fmt.Sprintf(" For that, read the row \"%s\" of the tests of each term, which tests every term reading the column together, or write the hypothesis as %s.", mdText(label), mdCode(strings.Join(whole, "; ")))
-	}
-	return s + fmt.Sprintf(" For that, write the hypothesis as %s.", mdCode(strings.Join(whole, "; ")))
+	tested := slices.ContainsFunc(or.TermTests, func(t runner.TermTest) bool { return t.Term == label })
+	return c.Sentence(text, tested, mdCode, mdText)
 }
 
 // writeHypotheses writes the Wald tests of the plan's hypotheses.

@@ -89,6 +89,7 @@ func CheckData(p *plan.Plan) ([]string, error) {
 			warnings = append(warnings, w)
 		}
 		scopes = append(scopes, hypothesisScope(p.Outcomes[i].Column, ld.Design, ld.Data.Categories))
+		warnings = append(warnings, PartOfColumnWarnings(p, r.Outcome, ld.Design)...)
 		// The new rows to predict: read through the design as run reads
 		// them after the fits (an undeclared level, a value a
 		// transformation cannot take), so that check finds what run would
@@ -211,8 +212,10 @@ func (or *OutcomeResult) levelRows() *data.Dataset {
 // FewClustersWarnings are the warnings of a run's outcomes whose data have
 // too few clusters for clustered errors (Analysis.FewClusters), or levels
 // that a bootstrap of whole clusters will often leave out
-// (Analysis.StabilityLevels, when the resamples were drawn), as check
-// words them.
+// (Analysis.StabilityLevels, when the resamples were drawn), and the
+// other warnings of the data check makes (levels with few rows, ...,
+// hypotheses restricting part of a data column's terms:
+// PartOfColumnWarnings), as check words them.
 func FewClustersWarnings(res *Result) []string {
 	var out []string
 	an := res.Analysis
@@ -241,6 +244,9 @@ func FewClustersWarnings(res *Result) []string {
 		}
 		if w := ProfileUndefinedWarning(an.Outcomes[i].Outcome, profileUndefined(an, or)); w != "" {
 			out = append(out, w)
+		}
+		if res.Plan != nil && or.Design != nil {
+			out = append(out, PartOfColumnWarnings(res.Plan, an.Outcomes[i].Outcome, or.Design)...)
 		}
 	}
 	return out

@@ -7,6 +7,7 @@ import (
 	"slices"
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/plan"
 	"ordplan/runner/data"
 	"ordplan/runner/design"
@@ -46,6 +47,54 @@ type ColumnTerms struct {
 	Column string   `json:"column"`
 	Terms  []string `json:"terms"`
 	Named  []string `json:"named"`
+}
+
+// Sentence says what hypothesis text, which restricts c.Named and not
+// the column's other terms, asks, and where the test of the column as a
+// whole is: the row ColumnLabel of the tests of each term when they are
+// made (tested), or the hypothesis restricting every term. code writes
+// a hypothesis, name a column or term. The one wording of the report and
+// of the warning of check and run (PartOfColumnWarnings).
+func (c ColumnTerms) Sentence(text string, tested bool, code, name func(string) string) string {
+	var others, whole []string
+	for _, t := range c.Terms {
+		if !slices.Contains(c.Named, t) {
+			others = append(others, name(t))
+		}
+		whole = append(whole, t+" = 0")
+	}
+	verb := "is"
+	if len(others) > 1 {
+		verb = "are"
+	}
+	term, adds := "term", "adds"
+	if len(c.Named) > 1 {
+		term, adds = "terms", "add"
+	}
+	named := words.AndList(words.Each(c.Named, name))
+	s := fmt.Sprintf("%s restricts %s %s, which data column %s makes together with %s: it asks what %s %s while %s %s held fixed, which cannot happen as the column changes, and not whether column %s is associated with the outcome.",
+		code(text), term, named, name(c.Column), words.AndList(others), named, adds, words.AndList(others), verb, name(c.Column))
+	if tested {
+		return s + fmt.Sprintf(" For that, read the row \"%s\" of the tests of each term, which tests every term reading the column together, or write the hypothesis as %s.", name(ColumnLabel(c.Column)), code(strings.Join(whole, "; ")))
+	}
+	return s + fmt.Sprintf(" For that, write the hypothesis as %s.", code(strings.Join(whole, "; ")))
+}
+
+// PartOfColumnWarnings are the warnings of check and run for outcome's
+// design dz: one for each hypothesis of p restricting some, not all, of
+// the terms a data column makes (partOfColumn), at its place, as the
+// report words it (ColumnTerms.Sentence).
+func PartOfColumnWarnings(p *plan.Plan, outcome string, dz *design.Design) []string {
+	var out []string
+	tested := p.Inference.TermTests != plan.TermTestsNone
+	quote := func(s string) string { return `"` + s + `"` }
+	same := func(s string) string { return s }
+	for i, h := range p.Inference.Hypotheses {
+		for _, c := range partOfColumn(h.Text, dz) {
+			out = append(out, fmt.Sprintf("outcome %s: inference.hypotheses[%d] (line %d): %s", outcome, i, h.Line, c.Sentence(h.Text, tested, quote, same)))
+		}
+	}
+	return out
 }
 
 // MarginalSet is one kind of marginal effects of the chosen model.

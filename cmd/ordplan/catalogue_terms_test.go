@@ -303,6 +303,33 @@ func termItems(dir string) []badInput {
 		{id: "T10", name: "an empty term name (ordplan fit |as=)", setup: writeTermsData, code: 1,
 			args: fitArgs(cat, "--predictors", "site|levels=north/east/south|as=,x"),
 			want: []string{`--predictors: predictor 1 ("site|levels=north/east/south|as="): |as= names the term: give a name (as=name)`}},
+		{id: "W40", name: "a hypothesis restricting one of the terms a data column makes", args: []string{"check"}, setup: writeTermsData,
+			plan: termsEdit("[site, x]", "[site, x, {name: lx, column: x, log: {shift: 1}}]", "rules:", "inference:\n  hypotheses: [\"x = 0\", \"x = 0; lx = 0\"]\nrules:"), code: 0,
+			check: func(t *testing.T, dir, out, errs string) {
+				// Said once, for the hypothesis restricting x alone; run says
+				// it on stderr and the report beside the hypotheses.
+				want := strings.Replace(`warning: W40.yaml: outcome y: inference.hypotheses[0] (line 10): "x = 0" restricts term x, which data column x makes together with lx: it asks what x adds while lx is held fixed, which cannot happen as the column changes, and not whether column x is associated with the outcome. For that, read the row "column x" of the tests of each term, which tests every term reading the column together, or write the hypothesis as "x = 0; lx = 0".`+"\n", "W40.yaml", filepath.Join(dir, "W40.yaml"), 1)
+				if !strings.Contains(errs, want) {
+					t.Errorf("check: want %q in\n%s", want, errs)
+				}
+				if n := strings.Count(errs, "restricts term"); n != 1 {
+					t.Errorf("check: said %d times, want once:\n%s", n, errs)
+				}
+				pl := filepath.Join(dir, "W40.yaml")
+				o, e, code := runCLI("run", pl, "--out", filepath.Join(dir, "W40-out"), "--quiet")
+				if code != 0 || !strings.Contains(e, `warning: `+pl+`: outcome y: inference.hypotheses[0] (line 10): "x = 0" restricts term x`) {
+					t.Errorf("run: exit %d:\n%s%s", code, o, e)
+				}
+				rep, err := os.ReadFile(filepath.Join(dir, "W40-out", "report.md"))
+				if err != nil || !strings.Contains(string(rep), "`x = 0` restricts term x, which data column x makes together with lx") {
+					t.Errorf("report.md does not say it (%v)", err)
+				}
+				// Without the tests of each term, the hypothesis alone.
+				os.WriteFile(pl, []byte(termsEdit("[site, x]", "[site, x, {name: lx, column: x, log: {shift: 1}}]", "rules:", "inference:\n  hypotheses: [\"x = 0\"]\n  term_tests: none\nrules:")), 0o644)
+				if _, e, code := runCLI("check", pl); code != 0 || !strings.Contains(e, `the outcome. For that, write the hypothesis as "x = 0; lx = 0".`) {
+					t.Errorf("check, term tests off: exit %d:\n%s", code, e)
+				}
+			}},
 		{id: "T11", name: "a subset value written otherwise than the data write it", args: []string{"check", "--no-data"}, setup: writeTermsData,
 			plan: termsEdit("predictors:", "subset:\n  - {column: site, one_of: [north, East]}\npredictors:"), code: 1,
 			want: []string{`T11.yaml:7:5: subset[0]: names "East", which is not a level of site but is written like its level "east" (categorical.site.levels): a misspelt value keeps or drops other rows than meant; write the level as declared` + "\n"}},
