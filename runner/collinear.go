@@ -6,6 +6,7 @@ import (
 	"slices"
 	"strings"
 
+	"ordplan/runner/data"
 	"ordplan/runner/design"
 	"ordplan/runner/fit"
 )
@@ -17,7 +18,7 @@ import (
 // place of the term to remove (":LINE:COL", "" for flags) and the message,
 // or ok false when err is no collinearity or its columns are not the
 // design's.
-func (r Reading) collinearTerms(err error, dz *design.Design, source string) (place, msg string, ok bool) {
+func (r Reading) collinearTerms(err error, dz *design.Design, source string, lost func([]data.LevelRef) string) (place, msg string, ok bool) {
 	var ie *fit.InputError
 	if !errors.As(err, &ie) || ie.Collinear == nil || dz == nil {
 		return "", "", false
@@ -76,6 +77,20 @@ func (r Reading) collinearTerms(err error, dz *design.Design, source string) (pl
 	empty := ""
 	for _, t := range append([]int{at}, others...) {
 		if empty = dz.EmptyCells(t); empty != "" {
+			// Why no row used has the first combination, when its rows
+			// were all dropped (data.LevelDrops): "; that combination
+			// occurs in 62 rows of the data, each dropped for the subset
+			// (...)".
+			var cell []data.LevelRef
+			for j, l := range dz.Terms[t].Empty[0] {
+				cell = append(cell, data.LevelRef{Column: dz.Terms[t].EmptyOf[j], Level: l})
+			}
+			if lost == nil {
+				break
+			}
+			if why := lost(cell); why != "" {
+				empty += "; that combination" + strings.TrimPrefix(why, "It")
+			}
 			break
 		}
 	}
@@ -149,7 +164,18 @@ func termPlaceOf(ts *design.TermSpec, msg string) (place, out string, ok bool) {
 // collinear term or more parameters than observations, ends with it, the
 // likely cause.
 func (a *Analysis) designError(r Reading, dz *design.Design, few string, err error, what string) error {
-	place, msg, ok := r.collinearTerms(err, dz, a.Source)
+	place, msg, ok := r.collinearTerms(err, dz, a.Source, func(cell []data.LevelRef) string {
+		if few != "" || what != "" || a.Imputes() {
+			// Why so few rows remain is said after; imputed data hold
+			// other rows than those read.
+			return ""
+		}
+		var keys func([]data.DropCount) []string
+		if a.Plan {
+			keys = r.lossKeys
+		}
+		return data.LevelDrops(a.Paths(), r.Options, cell, keys)
+	})
 	var ie *fit.InputError
 	counted := ok || errors.As(err, &ie) && ie.FewObservations
 	if !counted {

@@ -899,7 +899,7 @@ func decideImputed(an *Analysis, r Reading, or *OutcomeResult, sets []*data.Data
 func (an *Analysis) checkImputedDesign(r Reading, dz *design.Design, ds *data.Dataset, fits []*fit.Data) error {
 	for k, d := range fits {
 		if err := fit.CheckDesign(d); err != nil {
-			if _, _, ok := r.collinearTerms(err, dz, an.Source); ok {
+			if _, _, ok := r.collinearTerms(err, dz, an.Source, nil); ok {
 				return an.designError(r, dz, "", err, fmt.Sprintf("imputed set %d", k+1))
 			}
 			return fmt.Errorf("%s: outcome %q, imputed set %d: %v", an.Source, r.Outcome, k+1, err)

@@ -496,7 +496,7 @@ func (a *Analysis) designRefusal(r Reading, ds *data.Dataset, err error) error {
 		if a.Plan {
 			keys = r.lossKeys
 		}
-		return data.LevelDrops(a.Paths(), r.Options, col, level, keys)
+		return data.LevelDrops(a.Paths(), r.Options, []data.LevelRef{{Column: col, Level: level}}, keys)
 	})
 	if !a.Plan {
 		return fmt.Errorf("%s: %v", a.DataFile, err)
@@ -596,7 +596,7 @@ func (a *Analysis) observedIn(r Reading, ds *data.Dataset, in string) error {
 		if a.Plan {
 			keys = r.lossKeys
 		}
-		if why := data.LevelDrops(a.Paths(), r.Options, ds.Outcome, ds.Unobserved[0], keys); why != "" {
+		if why := data.LevelDrops(a.Paths(), r.Options, []data.LevelRef{{Column: ds.Outcome, Level: ds.Unobserved[0]}}, keys); why != "" {
 			return fmt.Errorf("%s: %s: category %q is declared but never observed in %s. %s. If these are the rows meant, remove it from %s or merge it with a neighbour",
 				a.Source, r.Key, ds.Unobserved[0], rows, why, r.CategoriesKey)
 		}

@@ -93,17 +93,25 @@ func writeTiesData(t *testing.T, dir, _ string) {
 // south), grade (lo, hi) and x, where no row has site south with grade hi.
 func writeCellsData(t *testing.T, dir, _ string) {
 	t.Helper()
-	var b strings.Builder
+	var b, c strings.Builder
 	b.WriteString("y,site,grade,x\n")
+	c.WriteString("y,site,grade,x,keep,w\n")
 	for i := 0; i < 60; i++ {
 		site, grade := []string{"north", "east", "south"}[i%3], []string{"lo", "hi"}[(i/3)%2]
+		keep, w := "yes", 1
+		if site == "south" && grade == "hi" {
+			keep, w = "no", 0
+		}
+		fmt.Fprintf(&c, "%d,%s,%s,%d,%s,%d\n", 1+(i*7+i/5)%3, site, grade, i%7, keep, w)
 		if site == "south" {
 			grade = "lo"
 		}
 		fmt.Fprintf(&b, "%d,%s,%s,%d\n", 1+(i*7+i/5)%3, site, grade, i%7)
 	}
-	if err := os.WriteFile(filepath.Join(dir, "cells.csv"), []byte(b.String()), 0o644); err != nil {
-		t.Fatal(err)
+	for name, body := range map[string]string{"cells.csv": b.String(), "cellskeep.csv": c.String()} {
+		if err := os.WriteFile(filepath.Join(dir, name), []byte(body), 0o644); err != nil {
+			t.Fatal(err)
+		}
 	}
 }
 
@@ -358,7 +366,29 @@ func termItems(dir string) []badInput {
 			want: []string{`T18.yaml: inference.predict: west.csv:5: column "site": level "west" occurs in no row the model was fitted to (its column was dropped: unobserved: drop), so the model has no effect of it` + "\n"}},
 		{id: "T19", name: "an interaction of categorical predictors with a combination of levels no row has", args: []string{"check"}, setup: writeCellsData,
 			plan: termsEdit("cat.csv", "cells.csv", "south]}\n", "south]}\n  grade: {levels: [lo, hi]}\n", "[site, x]", "[site, grade, x, {interact: [site, grade]}]"), code: 1,
-			want: []string{`T19.yaml:7:30: predictors[3]: term "site&grade": its column "site.south&grade.hi" is 0 in every row used: no row used has site "south" with grade "hi", so the interaction cannot be estimated for every combination of levels; leave the interaction out, or merge levels or restrict the rows (subset) so that every combination has rows (data cells.csv, outcome "y")` + "\n"}},
+			want: []string{`T19.yaml:7:30: predictors[3]: term "site&grade": its column "site.south&grade.hi" is 0 in every row used: no row used has site "south" with grade "hi", so the interaction cannot be estimated for every combination of levels; leave the interaction out, or merge levels or restrict the rows (subset) so that every combination has rows (data cells.csv, outcome "y")` + "\n"},
+			check: func(t *testing.T, dir, out, errs string) {
+				// The combination's rows all left out by the subset on
+				// another column, or all of weight 0: said, with the count
+				// and the plan key, as for a level (T6).
+				cells := termsEdit("cat.csv", "cellskeep.csv", "south]}\n", "south]}\n  grade: {levels: [lo, hi]}\n", "[site, x]", "[site, grade, x, {interact: [site, grade]}]")
+				for _, c := range []struct{ name, plan, why string }{
+					{"subset", strings.Replace(cells, "predictors:", "subset:\n  - {column: keep, one_of: [\"yes\"]}\npredictors:", 1), "the subset (outside the subset keep in {yes}: 10; plan key subset[0])"},
+					{"weights", strings.Replace(cells, "file: cellskeep.csv", "file: cellskeep.csv, weights: w", 1), "zero weight (w = 0: 10; plan key data.weights)"},
+				} {
+					pl := filepath.Join(dir, "T19"+c.name+".yaml")
+					os.WriteFile(pl, []byte(c.plan), 0o644)
+					want := `no row used has site "south" with grade "hi"; that combination occurs in 10 rows of the data, each dropped for ` + c.why + `, so the interaction cannot be estimated`
+					if _, e, code := runCLI("check", pl); code != 1 || !strings.Contains(e, want) {
+						t.Errorf("check, the combination lost to %s: exit %d, want %q in\n%s", c.name, code, want, e)
+					}
+				}
+				args := fitArgs(filepath.Join(dir, "cellskeep.csv"), "--predictors", "site|levels=north/east/south,grade|levels=lo/hi,x,site&grade", "--weights", "w")
+				want := `no row used has site "south" with grade "hi"; that combination occurs in 10 rows of the data, each dropped for zero weight (w = 0: 10), so`
+				if _, e, code := runCLI(args...); code != 1 || !strings.Contains(e, want) {
+					t.Errorf("fit, the combination of weight 0: exit %d, want %q in\n%s", code, want, e)
+				}
+			}},
 		{id: "T20", name: "a level in the data written otherwise than the plan writes it (a number, another case)", args: []string{"check"}, setup: writeCodesData,
 			plan: termsEdit("cat.csv", "codes.csv", "site: {levels: [north, east, south]}", "grade: {levels: [1, 2, 3]}", "[site, x]", "[grade, x]"), code: 1,
 			want: []string{`codes.csv:4: column "grade": value "2.0" is not one of the declared levels of this categorical predictor: "1", "2", "3" (it is the level "2" written otherwise; a level is read only as the plan writes it: write the levels as the data do) (plan T20.yaml, outcome "y", plan key categorical.grade)` + "\n"},

@@ -298,9 +298,10 @@ func dropList(dc []DropCount) string {
 	return s
 }
 
-// LevelDrops reads the data (paths, opt) for the rows whose cell of the
-// categorical predictor column col is level (or, col the outcome, whose
-// declared category it is), and says why none of them is used: "It occurs in 20 rows of the data, each dropped for the
+// LevelDrops reads the data (paths, opt) for the rows whose cell of each
+// categorical predictor column of levels is its level (or, the column the
+// outcome, whose declared category it is: a combination of levels of an
+// interaction when several), and says why none of them is used: "It occurs in 20 rows of the data, each dropped for the
 // subset (outside the subset region in {a}: 20)", the reasons and the
 // counts by column as the data's count of dropped rows gives them
 // (DropReasons, under the first reason that applies: the subset, a
@@ -308,8 +309,8 @@ func dropList(dc []DropCount) string {
 // those counts (nil: none), last in the parentheses ("...: 20; plan key
 // subset[0]"). "" when no row has the level, or some row of it is used,
 // or the data cannot be read so.
-func LevelDrops(paths []string, opt Options, col, level string, keys func([]DropCount) []string) string {
-	opt.OnlyLevel = &LevelRef{Column: col, Level: level}
+func LevelDrops(paths []string, opt Options, levels []LevelRef, keys func([]DropCount) []string) string {
+	opt.OnlyLevels = levels
 	// Read as a part is: no refusal for keeping no row, no judging of
 	// the subset's listed values on these rows alone, no rescaling.
 	opt.Part, opt.Sampling, opt.WholeWeights = true, false, nil

@@ -75,11 +75,11 @@ type Options struct {
 	// rows used names when the column's missing values dropped rows
 	// (Dataset.FewRowsSentence); nil outside a plan.
 	Entries map[string][]Entry `json:"-"`
-	// OnlyLevel, when set, reads only the rows whose cell of a
-	// categorical predictor column is the given level, or of the outcome
-	// its declared category (LevelDrops): the other rows are counted as
-	// read and nothing more.
-	OnlyLevel *LevelRef `json:"-"`
+	// OnlyLevels, when set, reads only the rows whose cell of each
+	// categorical predictor column named is the given level, or of the
+	// outcome its declared category (LevelDrops): the other rows are
+	// counted as read and nothing more.
+	OnlyLevels []LevelRef `json:"-"`
 }
 
 // Entry is a plan entry that reads a column: its key (predictors[1]) and

@@ -82,7 +82,7 @@ func readBytes(raw []byte, name string, opt Options) (*Dataset, error) {
 	if err := r.columnChecks(); err != nil {
 		return nil, err
 	}
-	if r.opt.OnlyLevel != nil {
+	if r.opt.OnlyLevels != nil {
 		return r.sheetRows() // row by row: rows of other levels are passed over (record)
 	}
 	if cr, ok := r.cr.(*columnRecords); ok {

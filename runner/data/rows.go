@@ -60,7 +60,7 @@ func (r *reader) record(t *rowTally, d *Dataset, rec []string) error {
 	if r.repeatsHeader(rec) {
 		return r.headerAgain()
 	}
-	if r.opt.OnlyLevel != nil && !r.ofLevel(t, rec) {
+	if r.opt.OnlyLevels != nil && !r.ofLevels(t, rec) {
 		return nil
 	}
 	if out, err := r.outsideSubset(t, rec); err != nil {
@@ -359,11 +359,21 @@ func (r *reader) outsideSubset(t *rowTally, rec []string) (int, error) {
 	return -1, nil
 }
 
-// ofLevel reports whether a record's cell of the column of
-// Options.OnlyLevel is its level (as parseRow reads a level), or, for the
-// outcome column, its declared category.
-func (r *reader) ofLevel(t *rowTally, rec []string) bool {
-	lr := r.opt.OnlyLevel
+// ofLevels reports whether a record's cells of the columns of
+// Options.OnlyLevels are their levels (ofLevel).
+func (r *reader) ofLevels(t *rowTally, rec []string) bool {
+	for _, lr := range r.opt.OnlyLevels {
+		if !r.ofLevel(t, rec, lr) {
+			return false
+		}
+	}
+	return true
+}
+
+// ofLevel reports whether a record's cell of column lr.Column is level
+// lr.Level (as parseRow reads a level), or, for the outcome column, its
+// declared category.
+func (r *reader) ofLevel(t *rowTally, rec []string, lr LevelRef) bool {
 	for _, c := range r.cols {
 		if c.name != lr.Column || c.role != rolePredictor && c.role != roleOutcome {
 			continue
