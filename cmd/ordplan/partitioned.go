@@ -41,7 +41,7 @@ func fitPartitioned(s runner.SingleFit, f *fitFlags, parts []string, stdout, std
 	if err := a.PartsCheck(whole, m, kept); err != nil {
 		return fail(stderr, err)
 	}
-	ctx, c, done, err := connectQueue(cfg, *qf.deadline, stderr)
+	ctx, c, done, err := connectQueue(cfg, *qf.deadline, stderr, false)
 	if err != nil {
 		return fail(stderr, err)
 	}

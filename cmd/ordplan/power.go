@@ -100,7 +100,7 @@ func cmdPower(args []string, stdout, stderr io.Writer) int {
 		opt.Progress = olock.progress(stderr)
 	}
 	if qcfg != nil {
-		ctx, c, done, err := connectQueue(*qcfg, *qf.deadline, stderr)
+		ctx, c, done, err := connectQueue(*qcfg, *qf.deadline, stderr, true) // olock's folder is watched
 		if err != nil {
 			return fail(stderr, err)
 		}

@@ -795,3 +795,34 @@ func TestFitPartsOffsetThroughWorkers(t *testing.T) {
 		}
 	}
 }
+
+// A run through the queue interrupted while it waits for the workers ends
+// with the one line saying what its output folder holds (O8), exit 130:
+// the wait for workers, also ended by the interrupt, used to add
+// "ordplan: queue: warm: waiting for workers: interrupt signal received"
+// after it.
+func TestQueueRunInterruptedSaysOneLine(t *testing.T) {
+	if testing.Short() {
+		t.Skip("starts a coordinator process")
+	}
+	plan := filepath.Join("..", "..", "runner", "testdata", "gss_stepwise.yaml")
+	url := localserver.ForTest(t)
+	out := filepath.Join(t.TempDir(), "out")
+	run := startProc(t, nil, "run", plan, "--out", out, "--queue", url)
+	run.waitLog(t, 30*time.Second, "published")
+	run.cmd.Process.Signal(os.Interrupt)
+	select {
+	case <-run.done:
+	case <-time.After(20 * time.Second):
+		t.Fatal("the run did not stop on an interrupt")
+	}
+	errs := run.stderr.String()
+	lines := strings.Split(strings.TrimSpace(errs), "\n")
+	want := "ordplan run: interrupted before writing its outputs; output folder " + out + ": no output was written, and the folder, which it made, is removed again"
+	if lines[len(lines)-1] != want || strings.Contains(errs, "waiting for workers") {
+		t.Errorf("stderr:\n%s\nwant its last line %q alone", errs, want)
+	}
+	if code := run.cmd.ProcessState.ExitCode(); code != 130 && code != -1 {
+		t.Errorf("exit %d, want 130 (or the signal)", code)
+	}
+}

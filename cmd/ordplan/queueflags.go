@@ -83,11 +83,17 @@ func usageOrFail(cmd string, err error, stderr interface{ Write([]byte) (int, er
 }
 
 // connectQueue connects to the queue with a context that ends on an
-// interrupt or a termination signal; deadline (0: the default) is how long
-// a coordinator waits for results. done closes the connection and stops
+// interrupt or a termination signal, unless watched: the command holds an
+// output folder, whose interrupt watch (watchInterrupts) stops it with the
+// one line saying what the folder holds (O8), which a failed wait for
+// workers must not follow. deadline (0: the default) is how long a
+// coordinator waits for results. done closes the connection and stops
 // catching the signals.
-func connectQueue(cfg queue.Config, deadline time.Duration, log io.Writer) (ctx context.Context, c *queue.Client, done func(), err error) {
-	ctx, stop := signal.NotifyContext(context.Background(), stopSignals()...)
+func connectQueue(cfg queue.Config, deadline time.Duration, log io.Writer, watched bool) (ctx context.Context, c *queue.Client, done func(), err error) {
+	ctx, stop := context.WithCancel(context.Background())
+	if !watched {
+		ctx, stop = signal.NotifyContext(context.Background(), stopSignals()...)
+	}
 	c, err = dialQueue(ctx, cfg, deadline, log)
 	if err != nil {
 		stop()

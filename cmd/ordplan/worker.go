@@ -122,7 +122,7 @@ func runPlan(p *plan.Plan, opt runner.Options, cfg *queue.Config, deadline time.
 	if cfg == nil {
 		return runner.Run(p, opt)
 	}
-	ctx, c, done, err := connectQueue(*cfg, deadline, stderr)
+	ctx, c, done, err := connectQueue(*cfg, deadline, stderr, true) // run's output folder is watched
 	if err != nil {
 		return nil, err
 	}
