@@ -3,6 +3,7 @@ package data
 import (
 	"archive/zip"
 	"bytes"
+	"encoding/csv"
 	"encoding/xml"
 	"fmt"
 	"html"
@@ -575,12 +576,7 @@ var totalLabels = map[string]bool{"total": true, "totals": true, "sum": true, "g
 
 // typedTotals refuses a row of totals typed as numbers (or saved without
 // the formulas that made them) at the foot of the sheet's table: its last
-// filled row has a cell that says Total (totalLabels, in any column) and,
-// in every other used column where it is filled, a number, the sum of
-// the numbers above it in the column (two at least; equal but for the
-// rounding of the summation, 1e-12 of the sum of their sizes), not 0 in
-// one column at least. A data row rarely does both, so no other row is
-// taken for one.
+// filled row, judged by sumsRow against the rows above it.
 func (s *sheetRecords) typedTotals(cols []usedCol, d Dialect) *Error {
 	last := len(s.rows) - 1
 	for last > 0 && blankRow(s.rows[last]) {
@@ -591,51 +587,132 @@ func (s *sheetRecords) typedTotals(cols []usedCol, d Dialect) *Error {
 		return nil
 	}
 	rec := s.rows[last]
-	label := -1
-	for j, c := range rec {
-		if totalLabels[strings.ToLower(strings.TrimSuffix(strings.Join(strings.Fields(c), " "), ":"))] {
-			label = j
-			break
-		}
-	}
-	if label < 0 {
-		return nil
-	}
-	var hit *usedCol
-	var sum string
-	for i, c := range cols {
-		if c.index >= len(rec) || c.index == label || strings.TrimSpace(rec[c.index]) == "" {
-			continue
-		}
-		v, msg := d.number(strings.TrimSpace(rec[c.index]))
-		if msg != "" {
-			return nil
-		}
-		var total, size float64
-		n := 0
+	label, hit, sum := sumsRow(rec, func(each func([]string)) {
 		for k := s.headerLine - s.first + 1; k < last; k++ {
-			if c.index >= len(s.rows[k]) {
-				continue
-			}
-			if x, msg := d.number(strings.TrimSpace(s.rows[k][c.index])); msg == "" {
-				total += x
-				size += math.Abs(x)
-				n++
-			}
+			each(s.rows[k])
 		}
-		if n < 2 || math.Abs(v-total) > 1e-12*size {
-			return nil
-		}
-		if hit == nil && v != 0 {
-			hit, sum = &cols[i], strings.TrimSpace(rec[c.index])
-		}
-	}
+	}, cols, d)
 	if hit == nil {
 		return nil
 	}
 	labelRef, _ := excelize.CoordinatesToCellName(s.lead+label+1, row)
 	ref, _ := excelize.CoordinatesToCellName(s.lead+hit.index+1, row)
 	return &Error{Line: row, Column: hit.name, Msg: fmt.Sprintf("row %d of sheet %s looks like a row of totals, not a row of data, and would be read as one: cell %s says %s, and the numbers of the used columns in it are the sums of the rows above (%s holds %s, the sum of the column's cells above it); %s", row, quoteCell(s.read.Name), labelRef, quoteCell(strings.TrimSpace(rec[label])), ref, quoteCell(sum), totalsAdvice)}
+}
+
+// csvTotals is typedTotals for CSV text: the last line of raw (the whole
+// file; body is where the rows start) that holds a field, read in the
+// dialect, judged by sumsRow against the records above it. The records
+// are read again only when that line says Total.
+func (r *reader) csvTotals(raw []byte, body int) *Error {
+	end := len(raw)
+	for end > body && isSpaceByte(raw[end-1]) {
+		end--
+	}
+	start := bytes.LastIndexByte(raw[body:end], '\n') + 1 + body
+	if start >= end || len(r.cols) == 0 {
+		return nil
+	}
+	read := func(b []byte) *csv.Reader {
+		cr := csv.NewReader(bytes.NewReader(b))
+		cr.Comma = r.opt.Dialect.delim()
+		cr.FieldsPerRecord = -1
+		cr.TrimLeadingSpace = trimsLeadingSpace(cr.Comma)
+		return cr
+	}
+	last, err := read(raw[start:end]).Read()
+	if err != nil || !slices.ContainsFunc(last, isTotalLabel) {
+		return nil
+	}
+	label, hit, sum := sumsRow(last, func(each func([]string)) {
+		cr := read(raw[body:start])
+		for {
+			rec, err := cr.Read()
+			if err != nil {
+				return
+			}
+			each(rec)
+		}
+	}, r.cols, r.opt.Dialect)
+	if hit == nil {
+		return nil
+	}
+	line := bytes.Count(raw[:start], []byte("\n")) + 1
+	e := r.fail(line, hit.name, "line %d looks like a row of totals, not a row of data, and would be read as one: its field %d (%s) says %s, and the numbers of the used columns in it are the sums of the lines above (%s holds %s, the sum of the column's values above it); delete the line, or keep the totals in another file", line, label+1, r.fieldName(label), quoteCell(strings.TrimSpace(last[label])), quoteCell(hit.name), quoteCell(sum))
+	return e
+}
+
+// fieldName is the header's name of field i, quoted, or "unnamed".
+func (r *reader) fieldName(i int) string {
+	if i < len(r.headerNames) {
+		return quoteCell(r.headerNames[i])
+	}
+	return "unnamed"
+}
+
+// isTotalLabel reports whether a cell names a row of totals (totalLabels,
+// in any case, with spaces and a colon after it allowed).
+func isTotalLabel(cell string) bool {
+	return totalLabels[strings.ToLower(strings.TrimSuffix(strings.Join(strings.Fields(cell), " "), ":"))]
+}
+
+// sumsRow judges the last filled record last of a table against the
+// records above it (from the first data row, passed to each by above): a
+// row of totals when a cell says Total (isTotalLabel, in any column; the
+// first is label) and, in every other used column where it is filled, a
+// number (read in d), the sum of the numbers above it in the column (two
+// at least; equal but for the rounding of the summation, 1e-12 of the sum
+// of their sizes), not 0 in one column at least, which is hit, its text
+// sum. A data row rarely does both, so no other row is taken for one;
+// hit is nil for any other record.
+func sumsRow(last []string, above func(each func([]string)), cols []usedCol, d Dialect) (label int, hit *usedCol, sum string) {
+	label = slices.IndexFunc(last, isTotalLabel)
+	if label < 0 {
+		return -1, nil, ""
+	}
+	type total struct {
+		v, sum, size float64
+		n            int
+	}
+	totals := map[int]*total{}
+	for _, c := range cols {
+		if c.index >= len(last) || c.index == label || strings.TrimSpace(last[c.index]) == "" {
+			continue
+		}
+		v, msg := d.number(strings.TrimSpace(last[c.index]))
+		if msg != "" {
+			return -1, nil, ""
+		}
+		totals[c.index] = &total{v: v}
+	}
+	if len(totals) == 0 {
+		return -1, nil, ""
+	}
+	above(func(rec []string) {
+		for i, t := range totals {
+			if i >= len(rec) {
+				continue
+			}
+			if x, msg := d.number(strings.TrimSpace(rec[i])); msg == "" {
+				t.sum += x
+				t.size += math.Abs(x)
+				t.n++
+			}
+		}
+	})
+	for i, c := range cols {
+		t := totals[c.index]
+		if t == nil {
+			continue
+		}
+		if t.n < 2 || math.Abs(t.v-t.sum) > 1e-12*t.size {
+			return -1, nil, ""
+		}
+		if hit == nil && t.v != 0 {
+			hit, sum = &cols[i], strings.TrimSpace(last[c.index])
+		}
+	}
+	return label, hit, sum
 }
 
 // aggregating is the letters of column col (1-based) when formula calls an

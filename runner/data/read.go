@@ -268,6 +268,15 @@ func (r *reader) columnChecks() error {
 			return e
 		}
 	}
+	if cr, ok := r.cr.(*csv.Reader); ok && r.raw != nil {
+		body := int(cr.InputOffset())
+		if bytes.HasPrefix(r.raw, utf8BOM) {
+			body += len(utf8BOM)
+		}
+		if e := r.csvTotals(r.raw, body); e != nil {
+			return e
+		}
+	}
 	for _, c := range r.cols {
 		if err := r.nestedUsed(c.name, c.index); err != nil {
 			return err

@@ -2,6 +2,8 @@ package data
 
 import (
 	"bytes"
+	"os"
+	"path/filepath"
 	"strings"
 	"testing"
 
@@ -202,6 +204,40 @@ func TestWorkbookTypedTotals(t *testing.T) {
 			t.Errorf("%s: %v", c.name, err)
 		case c.want != "" && (err == nil || !strings.Contains(err.Error(), c.want)):
 			t.Errorf("%s: got %v, want %s", c.name, err, c.want)
+		}
+	}
+}
+
+// A CSV file's last line that says Total and holds the sums of the used
+// columns above it (as a spreadsheet's table exported with its totals
+// row) is refused, naming the line, the field and a sum, in any dialect
+// and through a file read whole (Load) or by its bytes; a last line saying
+// Total whose numbers are not the sums, or sums without the word, is read.
+func TestCSVTypedTotals(t *testing.T) {
+	const table = "y,a,b,note\n1,0.5,1,x\n2,0.25,0,\n1,0.75,1,y\n2,0.125,1,\n"
+	opt := Options{Outcome: "y", Predictors: []string{"a", "b"}, KeepIncomplete: true}
+	want := `t.csv:6: column "a": line 6 looks like a row of totals, not a row of data, and would be read as one: its field 4 ("note") says "Total", and the numbers of the used columns in it are the sums of the lines above ("a" holds "1.625", the sum of the column's values above it); delete the line, or keep the totals in another file`
+	if _, err := Read(strings.NewReader(table+",1.625,3,Total\n\n"), "t.csv", opt); err == nil || err.Error() != want {
+		t.Errorf("totals: got %v, want %s", err, want)
+	}
+	semi := strings.ReplaceAll(strings.ReplaceAll(table+",1.625,3,Total:\r\n", ",", ";"), ".", ",")
+	o := opt
+	o.Dialect = Dialect{Delimiter: ';', DecimalComma: true}
+	if _, err := Read(strings.NewReader(semi), "t.csv", o); err == nil || !strings.Contains(err.Error(), `line 6 looks like a row of totals`) || !strings.Contains(err.Error(), `("a" holds "1,625"`) {
+		t.Errorf("totals with a decimal comma: %v", err)
+	}
+	path := filepath.Join(t.TempDir(), "t.csv")
+	os.WriteFile(path, []byte(table+"Sum,1.625,3,\n"), 0o644)
+	if _, err := Load(path, opt); err == nil || !strings.Contains(err.Error(), `line 6 looks like a row of totals, not a row of data, and would be read as one: its field 1 ("y") says "Sum"`) {
+		t.Errorf("Load: %v", err)
+	}
+	for name, in := range map[string]string{
+		"not the sums":      table + ",1.6,3,Total\n",
+		"sums, no word":     table + ",1.625,3,all\n",
+		"a level of a word": "y,a,b,note\n1,0,0,x\n2,0,0,total\n",
+	} {
+		if _, err := Read(strings.NewReader(in), "t.csv", opt); err != nil {
+			t.Errorf("%s: %v", name, err)
 		}
 	}
 }
