@@ -21,6 +21,10 @@ type RegistrationRecord struct {
 	// AllowedUnexplained is true when changes without a stated reason were
 	// let through by --allow-unregistered-changes.
 	AllowedUnexplained bool `json:"allowed_unexplained"`
+	// UnusedDeviations are the plan's stated deviations that explain no
+	// change from the lock (all of them when there is none), as the
+	// report lists them.
+	UnusedDeviations []UnusedDeviation `json:"unused_deviations,omitempty"`
 	// ReplacedLocks are the earlier locks of the plan that freeze
 	// --replace kept beside its lock.
 	ReplacedLocks []lock.Replaced `json:"replaced_locks,omitempty"`
@@ -187,6 +191,16 @@ func EarlierLockRuns(st *lock.Status, dataHash string, records []RunRecord) []Ea
 	return out
 }
 
+// UnusedDeviation is a stated deviation that explains no change: its key,
+// reason and plan line, and the changed key it may misspell
+// (lock.Status.NearestChanged).
+type UnusedDeviation struct {
+	Key      string `json:"key"`
+	Reason   string `json:"reason"`
+	Line     int    `json:"line"`
+	Misspelt string `json:"nearest_changed_key,omitempty"`
+}
+
 // registrationRecord converts a status (nil: not compared).
 func registrationRecord(st *lock.Status) *RegistrationRecord {
 	if st == nil {
@@ -195,6 +209,13 @@ func registrationRecord(st *lock.Status) *RegistrationRecord {
 	r := &RegistrationRecord{State: st.State, LockFile: st.LockFile, Changes: st.Changes, AllowedUnexplained: st.Allowed, ReplacedLocks: st.Replaced}
 	if r.Changes == nil {
 		r.Changes = []lock.Explained{}
+	}
+	for _, dv := range st.Unused {
+		u := UnusedDeviation{Key: dv.Key, Reason: dv.Reason, Line: dv.Line}
+		if st.State != lock.StateNone {
+			u.Misspelt = st.NearestChanged(dv)
+		}
+		r.UnusedDeviations = append(r.UnusedDeviations, u)
 	}
 	if f := st.Lock; f != nil {
 		r.CanonicalSHA256, r.FrozenAt, r.ProgramVersion, r.Registration = f.SHA256, f.FrozenAt, f.Version, f.Registration

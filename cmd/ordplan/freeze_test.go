@@ -212,6 +212,44 @@ func TestDeviationsNameEarlierRegisteredRuns(t *testing.T) {
 	}
 }
 
+// A stated deviation that explains no change is listed in decisions.json
+// as the report lists it, with the changed key it may misspell.
+func TestUnusedDeviationsRecorded(t *testing.T) {
+	dir, planPath, src := deviationStudy(t)
+	if _, errs, code := runCLI("freeze", planPath); code != 0 {
+		t.Fatalf("freeze: %d %s", code, errs)
+	}
+	os.WriteFile(planPath, []byte(strings.Replace(src, "{by: aic}", "{by: bic}", 1)+
+		"deviations:\n  - key: rules[1].choose.bye\n    reason: BIC, as the protocol says\n"), 0o644)
+	o := filepath.Join(dir, "out")
+	if out, errs, code := runCLI("run", planPath, "--out", o, "--quiet", "--allow-unregistered-changes"); code != 0 {
+		t.Fatalf("run: %d %s %s", code, out, errs)
+	}
+	md, _ := os.ReadFile(filepath.Join(o, "report.md"))
+	if !strings.Contains(string(md), "`rules[1].choose.bye` (plan line 11): BIC, as the protocol says (a misspelling of `rules[1].choose.by`, which changed?)") {
+		t.Errorf("report:\n%s", md)
+	}
+	var dec struct {
+		Registration struct {
+			Unused []struct {
+				Key, Reason, Nearest string
+				Line                 int
+			} `json:"unused_deviations"`
+		} `json:"registration"`
+	}
+	b, _ := os.ReadFile(filepath.Join(o, "decisions.json"))
+	if err := json.Unmarshal(b, &dec); err != nil {
+		t.Fatal(err)
+	}
+	u := dec.Registration.Unused
+	if len(u) != 1 || u[0].Key != "rules[1].choose.bye" || u[0].Reason != "BIC, as the protocol says" || u[0].Line != 11 {
+		t.Errorf("unused_deviations: %+v\n%s", u, b)
+	}
+	if !strings.Contains(string(b), `"nearest_changed_key": "rules[1].choose.by"`) {
+		t.Errorf("decisions.json lacks the nearest changed key:\n%s", b)
+	}
+}
+
 // A run of the registered plan, unchanged, whose output folder held runs
 // of it on other data (more rows arrived) says so at its head, in its
 // limits and methods, and in decisions.json: the data were analysed
