@@ -128,6 +128,7 @@ func (c *Client) runBatch(ctx context.Context, id string, tasks []*Task, h batch
 	if h.started != nil {
 		h.started(b.st)
 	}
+	b.notes.start()
 	deadline := c.JobDeadline
 	if deadline <= 0 {
 		deadline = DefaultJobDeadline

@@ -150,6 +150,7 @@ type batchNotes struct {
 	tasks   []*Task
 	sub     *nats.Subscription
 	ch      chan heard
+	begin   chan struct{} // closed by start
 	quit    chan struct{}
 	ended   chan struct{}
 	mu      sync.Mutex
@@ -172,7 +173,7 @@ type batchNotes struct {
 // with the reason. Notes come through a buffer; when it is full they are
 // dropped, never waited for.
 func (c *Client) follow(ctx context.Context, id string, tasks []*Task, cancel context.CancelCauseFunc) (*batchNotes, error) {
-	bn := &batchNotes{c: c, id: id, tasks: tasks, ch: make(chan heard, 256), quit: make(chan struct{}), ended: make(chan struct{}),
+	bn := &batchNotes{c: c, id: id, tasks: tasks, ch: make(chan heard, 256), begin: make(chan struct{}), quit: make(chan struct{}), ended: make(chan struct{}),
 		done: map[int]bool{}, holds: map[int]*holding{}, refused: map[string]int{}, wait: c.RefusedWait, connected: c.nc.IsConnected}
 	if bn.wait <= 0 {
 		bn.wait = DefaultRefusedWait
@@ -193,6 +194,11 @@ func (c *Client) follow(ctx context.Context, id string, tasks []*Task, cancel co
 	bn.sub = sub
 	go func() {
 		defer close(bn.ended)
+		select { // the notes wait in ch meanwhile
+		case <-bn.begin:
+		case <-bn.quit:
+			return
+		}
 		tick := time.NewTicker(250 * time.Millisecond)
 		defer tick.Stop()
 		for {
@@ -215,6 +221,16 @@ func (c *Client) follow(ctx context.Context, id string, tasks []*Task, cancel co
 		}
 	}()
 	return bn, nil
+}
+
+// start lets the notes heard so far, and the later ones, be said: after
+// the batch's first line, which says what was published.
+func (bn *batchNotes) start() {
+	select {
+	case <-bn.begin:
+	default:
+		close(bn.begin)
+	}
 }
 
 // answered marks task i as having its reply: nothing more is said of it.

@@ -76,6 +76,10 @@ func TestWorkerWithAnotherSecretLeavesJobs(t *testing.T) {
 		t.Errorf("the right worker's deliveries were spent by refusals:\n%s", right)
 	}
 	said := "queue: worker wrong refused job cumulative/"
+	// Said after the batch's first line, which says what was published.
+	if p, r := strings.Index(clog.String(), " published"), strings.Index(clog.String(), said); p < 0 || r < p {
+		t.Errorf("the refusal was said before the batch's first line:\n%s", clog)
+	}
 	if n := clog.Count(said); n != 1 || !strings.Contains(clog.String(), ": its secret differs from this coordinator's, or it runs another version of ordplan; the job stays on the queue for a worker with this coordinator's secret: give worker wrong the coordinator's secret file (--queue-secret-file) and this version of ordplan, or stop it") {
 		t.Errorf("the coordinator said %d times who refused the jobs, want once:\n%s", n, clog)
 	}
