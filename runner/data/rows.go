@@ -522,12 +522,63 @@ func (r *reader) notNumberHint(col, cell, msg, ref string) string {
 		return r.missingWordHint(col, cell)
 	case isNumberLike(cell) && strings.HasSuffix(cell, "%"):
 		return "; it is a percentage: write it as a number without the percent sign (50, or 0.5 as a share)"
+	case groupedHint(cell, r.opt.Dialect) != "":
+		return groupedHint(cell, r.opt.Dialect)
 	case isNumberLike(cell):
 		return ""
 	case formulaHint(cell, ref) != "":
 		return formulaHint(cell, ref)
 	}
 	return "; the column holds text: declare it categorical with its levels to use it as a predictor (in a plan under categorical:, in ordplan fit as COLUMN|levels=a/b/c)"
+}
+
+// currencySigns are the signs of money a spreadsheet writes before or
+// after an amount.
+const currencySigns = "$€£¥₹₽₩₺"
+
+// digitGroupers are the characters that separate groups of three digits
+// in the numbers some locales write: spaces (the no-break and the narrow
+// no-break space among them) and the apostrophe.
+var digitGroupers = []string{" ", "\u00a0", "\u202f", "\u2009", "'", "\u2019"}
+
+// groupedHint says, of a cell that is not a number but would be one
+// without a currency sign ($12.50, 12,50 €) or without the spaces or
+// apostrophes that group its digits in threes (1 234,5, 1'234.5), what it
+// holds and what to write; "" otherwise.
+func groupedHint(cell string, d Dialect) string {
+	if t := strings.TrimSpace(strings.Trim(cell, currencySigns+" \u00a0")); t != cell && t != "" && strings.ContainsAny(cell, currencySigns) {
+		if _, msg := d.number(t); msg == "" {
+			return "; it holds a currency sign: write the amount as a number without it, such as " + t + " (the currency in the column's name or the data dictionary's unit)"
+		}
+	}
+	for _, g := range digitGroupers {
+		if !strings.Contains(cell, g) {
+			continue
+		}
+		parts := strings.Split(cell, g)
+		whole := true
+		for _, p := range parts[1:] {
+			if len(p) < 3 || p[0] < '0' || p[0] > '9' || p[1] < '0' || p[1] > '9' || p[2] < '0' || p[2] > '9' || len(p) > 3 && p[3] >= '0' && p[3] <= '9' {
+				whole = false
+			}
+		}
+		joined := strings.Join(parts, "")
+		if _, msg := d.number(joined); whole && msg == "" {
+			return fmt.Sprintf("; it separates groups of digits with %s: write the number without them, such as %s", groupName(g), joined)
+		}
+	}
+	return ""
+}
+
+// groupName names a character that groups digits (digitGroupers).
+func groupName(g string) string {
+	switch g {
+	case " ":
+		return "spaces"
+	case "'", "\u2019":
+		return "apostrophes"
+	}
+	return fmt.Sprintf("the character U+%04X (a space)", []rune(g)[0])
 }
 
 // lookalikes are characters that look like the minus sign a number is

@@ -239,3 +239,29 @@ func TestProfileZeroFractionCodes(t *testing.T) {
 		}
 	}
 }
+
+// A number written with a currency sign or with its digits grouped by
+// spaces or apostrophes is refused saying what it holds and how to write
+// it; a cell that is no number without them gets no such hint.
+func TestGroupedAndCurrencyHints(t *testing.T) {
+	comma := Dialect{Delimiter: ';', DecimalComma: true}
+	for _, c := range []struct {
+		cell string
+		d    Dialect
+		want string
+	}{
+		{"$12.50", Dialect{}, "; it holds a currency sign: write the amount as a number without it, such as 12.50 (the currency in the column's name or the data dictionary's unit)"},
+		{"12,50 €", comma, "; it holds a currency sign: write the amount as a number without it, such as 12,50 (the currency in the column's name or the data dictionary's unit)"},
+		{"1 234,5", comma, "; it separates groups of digits with spaces: write the number without them, such as 1234,5"},
+		{"1\u202f234\u202f567", comma, "; it separates groups of digits with the character U+202F (a space): write the number without them, such as 1234567"},
+		{"1'234.5", Dialect{}, "; it separates groups of digits with apostrophes: write the number without them, such as 1234.5"},
+		{"1 23", Dialect{}, ""},
+		{"12 3456", Dialect{}, ""},
+		{"$", Dialect{}, ""},
+		{"US$ x", Dialect{}, ""},
+	} {
+		if got := groupedHint(c.cell, c.d); got != c.want {
+			t.Errorf("%q: got %q, want %q", c.cell, got, c.want)
+		}
+	}
+}
