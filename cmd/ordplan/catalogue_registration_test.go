@@ -149,6 +149,13 @@ func registrationItems(dir string) []badInput {
 			plan: goodPlan + "dictionary:\n  a: {range: [-1.5, 1.5]}\n  b: {values: [0, 1]}\n",
 			want: []string{`d.csv:4: column "a": value "-1.6773" is below the range [-1.5, 1.5] of the data dictionary (dictionary.a.range)`,
 				`d.csv: ... 31 problems in all against the data dictionary`}},
+		{id: "V9", name: "an outcome category renamed in the data", args: []string{"check"}, code: 1, lines: true,
+			plan: strings.Replace(edit("file: d.csv", "file: renamed.csv"), "  - column: y\n", "  - column: y\n    categories: [low, medium, high]\n", 1) + "dictionary:\n  a: {label: Dose}\n  b: {values: [0, 1]}\n",
+			setup: func(t *testing.T, dir, id string) {
+				os.WriteFile(filepath.Join(dir, "renamed.csv"), []byte("y,a,b\nlow,0.5,1\nmid,0.7,0\nhigh,0.1,1\nlow,0.2,0\nmid,0.9,1\nhigh,-0.4,0\n"), 0o644)
+			},
+			want: []string{`renamed.csv:3: column "y": value "mid" is not one of the declared categories: "low", "medium", "high"`,
+				`renamed.csv: column "y": the declared category "medium" is in no row, while "mid" (2 rows) is not declared: if the data renamed a category, write its new name in outcomes[0].categories (under a lock, a change from the registered plan to state in its deviations)`}},
 		{id: "V2", name: "a value that is not one of the dictionary's values", args: []string{"run"}, code: 1, lines: true,
 			plan: goodPlan + "dictionary:\n  a: {label: Dose}\n  b: {values: [0, 2]}\n",
 			want: []string{`ordplan: d.csv:3: column "b": value "1" is not one of the values 0, 2 of the data dictionary (dictionary.b.values)`}},

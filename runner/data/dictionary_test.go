@@ -175,3 +175,33 @@ func TestValidateMissingWordHint(t *testing.T) {
 		t.Errorf("got\n%v\nwant\n%s", err, want)
 	}
 }
+
+// An outcome whose declared category no row holds while rows hold a value
+// not declared gets, after the problems, the hint that the data may have
+// renamed the category; the same whether the file is read in chunks or
+// record by record. A file holding every declared category gets none.
+func TestValidateRenamedCategory(t *testing.T) {
+	var b strings.Builder
+	b.WriteString("y,a\n")
+	for i := range 60 {
+		y := []string{"low", "neither", "high", "neither"}[i%4]
+		fmt.Fprintf(&b, "%s,%d\n", y, i)
+	}
+	b.WriteString("odd,1\n")
+	path := writeTemp(t, "d.csv", b.String())
+	rules := []Rule{{Column: "y", Key: "outcomes[0].categories", Outcome: true, Categories: []string{"low", "neutral", "high"}}}
+	want := `d.csv: column "y": the declared category "neutral" is in no row, while "neither" (30 rows) and "odd" (1 row) are not declared: if the data renamed a category, write its new name in outcomes[0].categories (under a lock, a change from the registered plan to state in its deviations)`
+	for _, size := range []int{1 << 30, 64} {
+		withChunks(size, 3, func() {
+			err := Validate(path, rules, nil)
+			lines := strings.Split(strings.ReplaceAll(fmt.Sprint(err), path, "d.csv"), "\n")
+			if got := lines[len(lines)-1]; got != want {
+				t.Errorf("chunks of %d bytes: last line\n%s\nwant\n%s", size, got, want)
+			}
+		})
+	}
+	rules[0].Categories = []string{"low", "neither", "high"}
+	if err := Validate(path, rules, nil); err == nil || strings.Contains(err.Error(), "renamed") {
+		t.Errorf("every category held: %v", err)
+	}
+}

@@ -30,6 +30,97 @@ type ValidationError struct {
 	File     string
 	Problems []*Error // the first MaxProblems, in file order
 	Total    int      // all problems found
+	// Renamed says, for an outcome some of whose declared categories no
+	// row holds while undeclared values are found, that a category may
+	// have been renamed in the data (renamedHints).
+	Renamed []string
+	tally   map[string]*categoryTally // by outcome column
+}
+
+// categoryTally counts, for an outcome with declared categories, the rows
+// holding each category and each undeclared value.
+type categoryTally struct {
+	seen       []int
+	undeclared map[string]int
+	order      []string // undeclared values, as first found
+}
+
+// count adds a cell of the outcome to the tally: declared at index i
+// (ok), or not.
+func (e *ValidationError) count(c ruled, cell string, i int, ok bool) {
+	if e.tally == nil {
+		e.tally = map[string]*categoryTally{}
+	}
+	t := e.tally[c.Column]
+	if t == nil {
+		t = &categoryTally{seen: make([]int, len(c.Categories)), undeclared: map[string]int{}}
+		e.tally[c.Column] = t
+	}
+	if ok {
+		t.seen[i]++
+		return
+	}
+	if t.undeclared[cell] == 0 {
+		t.order = append(t.order, cell)
+	}
+	t.undeclared[cell]++
+}
+
+// merge adds another part's tallies (a later chunk of the file).
+func (e *ValidationError) merge(o *ValidationError) {
+	for col, ot := range o.tally {
+		if e.tally == nil {
+			e.tally = map[string]*categoryTally{}
+		}
+		t := e.tally[col]
+		if t == nil {
+			e.tally[col] = ot
+			continue
+		}
+		for i, n := range ot.seen {
+			t.seen[i] += n
+		}
+		for _, v := range ot.order {
+			if t.undeclared[v] == 0 {
+				t.order = append(t.order, v)
+			}
+			t.undeclared[v] += ot.undeclared[v]
+		}
+	}
+}
+
+// renamedHints words, for each outcome with declared categories that no
+// row holds and undeclared values that rows hold, that a category may
+// have been renamed in the data: the plan's categories then need the new
+// name (under a lock, a change to state among the deviations).
+func (e *ValidationError) renamedHints(cols []ruled) {
+	for _, c := range cols {
+		t := e.tally[c.Column]
+		if t == nil || len(t.order) == 0 {
+			continue
+		}
+		var absent, found []string
+		for i, n := range t.seen {
+			if n == 0 {
+				absent = append(absent, strconv.Quote(c.Categories[i]))
+			}
+		}
+		if len(absent) == 0 {
+			continue
+		}
+		for _, v := range t.order {
+			found = append(found, fmt.Sprintf("%s (%s)", quoteCell(v), words.Count(t.undeclared[v], "row", "rows")))
+		}
+		e.Renamed = append(e.Renamed, fmt.Sprintf("%s: column %q: the declared %s %s %s in no row, while %s %s not declared: if the data renamed a category, write its new name in %s (under a lock, a change from the registered plan to state in its deviations)",
+			e.File, c.Column, pluralWord(len(absent), "category", "categories"), words.AndList(absent), pluralWord(len(absent), "is", "are"), words.AndList(found), pluralWord(len(found), "is", "are"), c.Key))
+	}
+}
+
+func pluralWord(n int, one, many string) string {
+	if n == 1 {
+		return one
+	}
+	return many
 }
 
 // MaxProblems is the number of problems a ValidationError lists.
@@ -43,6 +134,7 @@ func (e *ValidationError) Error() string {
 	if e.Total > len(e.Problems) {
 		lines = append(lines, fmt.Sprintf("%s: ... %s in all against the data dictionary", e.File, words.Count(e.Total, "problem", "problems")))
 	}
+	lines = append(lines, e.Renamed...)
 	return strings.Join(lines, "\n")
 }
 
@@ -136,13 +228,16 @@ func ValidateDialect(path string, rules []Rule, missingTokens []string, d Dialec
 			for _, fv := range found {
 				ve.Total += fv.Total
 				ve.Problems = append(ve.Problems, fv.Problems[:min(len(fv.Problems), MaxProblems-len(ve.Problems))]...)
+				ve.merge(&fv)
 			}
+			ve.renamedHints(cols)
 			return ve.result()
 		}
 	}
 	if err := r.validateRecords(cols, ve); err != nil {
 		return err
 	}
+	ve.renamedHints(cols)
 	return ve.result()
 }
 
@@ -186,7 +281,9 @@ func (r *reader) validateRecords(cols []ruled, ve *ValidationError) error {
 			}
 			switch {
 			case c.Outcome && c.labels != nil:
-				if _, ok := declaredCategory(c.labels, cell, r.opt.Dialect.mark()); !ok {
+				i, ok := declaredCategory(c.labels, cell, r.opt.Dialect.mark())
+				ve.count(c, cell, i, ok)
+				if !ok {
 					msg = "value " + quoteCell(cell) + " is not one of the declared categories: " + quoteList(c.Categories) + " (" + c.Key + "; the data dictionary describes the whole file, rows outside the plan's subset too; add it to the categories, or list it among the missing-value markers, such as dictionary." + c.Column + ".missing)"
 				}
 			case c.Outcome:
