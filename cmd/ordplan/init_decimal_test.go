@@ -49,3 +49,26 @@ func TestInitWorkbookDecimalComma(t *testing.T) {
 		t.Errorf("--delimiter: exit %d, want %q in\n%s", code, want, errs)
 	}
 }
+
+// ordplan init describes a column of amounts written with a currency sign
+// (or digits grouped by spaces) as such, and proposes it as no predictor,
+// where it proposed the amounts as the levels of a categorical predictor.
+func TestInitFormattedNumbers(t *testing.T) {
+	dir := t.TempDir()
+	data := filepath.Join(dir, "m.csv")
+	if err := os.WriteFile(data, []byte("y,price,b\n1,$12.50,1\n2,$3.00,0\n3,$4.25,1\n1,$1.00,0\n2,$2.00,1\n3,$5.00,0\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	plan := filepath.Join(dir, "m.yaml")
+	if _, errs, code := runCLI("init", plan, "--data", data); code != 0 {
+		t.Fatal(errs)
+	}
+	text, err := os.ReadFile(plan)
+	if err != nil {
+		t.Fatal(err)
+	}
+	hasEach(t, string(text), `#   price  numbers written with a currency sign or with grouped digits ("$12.50"): write them as plain numbers to use the column`+"\n", "predictors: [b]\n")
+	if strings.Contains(string(text), "categorical:\n  price") {
+		t.Errorf("price proposed as categorical:\n%s", text)
+	}
+}

@@ -46,6 +46,8 @@ func KindOf(p data.Profile, haveData bool) Kind {
 	switch {
 	case p.Nested != "":
 		return Kind{Word: "nested", Describe: p.Nested + ", a nested Parquet column: not readable by ordplan (write it as a flat column to use it)"}
+	case p.Formatted != "":
+		return Kind{Word: "formatted", Describe: fmt.Sprintf("numbers written with a currency sign or with grouped digits (%s): write them as plain numbers to use the column%s", strconv.Quote(p.Formatted), miss)}
 	case len(p.Merged) > 0:
 		ranges := p.Merged
 		if len(ranges) > 3 {
@@ -116,7 +118,7 @@ func Write(in Input) ([]byte, error) {
 		switch {
 		case c.Numeric && weightLike(c):
 			weighty = append(weighty, c.Name)
-		case kinds[i].Word == "nested" || kinds[i].Word == "merged":
+		case kinds[i].Word == "nested" || kinds[i].Word == "merged" || kinds[i].Word == "formatted":
 			// Described as not readable above; never a predictor.
 		case kinds[i].Word == "cluster?":
 			clustery = append(clustery, c.Name)

@@ -64,6 +64,11 @@ type Profile struct {
 	// numbers a workbook or Parquet file holds as text, which data.decimal:
 	// comma reads as numbers; "" otherwise.
 	CommaNumber string
+	// Formatted, of a column of text every value of which (all of them
+	// listed: not Many) is a number, or one but for a currency sign or
+	// digits grouped by spaces or apostrophes (groupedHint), is the first
+	// such value ("$12.50", "1 234,5"); "" otherwise.
+	Formatted string
 	// Merged are the ranges of merged cells (B3:B22) that cover cells of a
 	// workbook's column but for the one holding their value, in order:
 	// those cells hold no value, are not counted among the values, and a
@@ -233,6 +238,7 @@ func (r *reader) profile() ([]Profile, error) {
 			p.Numeric, p.Integer = false, false
 		}
 		p.CommaNumber = commaNumbers(p, d)
+		p.Formatted = formattedNumbers(p, d)
 		if p.Numeric {
 			// Booleans read as numbers are listed as the numbers they
 			// are read as, whatever the format (true, TRUE: 1).
@@ -291,6 +297,26 @@ func commaNumbers(p *Profile, d Dialect) string {
 			return ""
 		}
 		if first == "" && strings.Contains(v, ",") {
+			first = v
+		}
+	}
+	return first
+}
+
+// formattedNumbers is Profile.Formatted of p, profiled in dialect d.
+func formattedNumbers(p *Profile, d Dialect) string {
+	if p.Numeric || p.Many || len(p.Values) == 0 {
+		return ""
+	}
+	first := ""
+	for _, v := range p.Values {
+		if _, msg := d.number(v); msg == "" {
+			continue
+		}
+		if groupedHint(v, d) == "" {
+			return ""
+		}
+		if first == "" {
 			first = v
 		}
 	}
