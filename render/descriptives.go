@@ -3,6 +3,7 @@ package render
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"ordplan/internal/words"
@@ -21,7 +22,10 @@ type descriptive struct {
 	N      []float64 // per category, then all: observations (sum of weights)
 	Mean   []float64 // per category, then all (the share for counts)
 	SD     []float64 // per category, then all (divisor: observations - 1)
-	Ones   []float64 // counts: observations with 1 (with the level)
+	Ones   []float64 // counts: observations with 1 (with the level, with the higher value)
+	// Higher: a numeric predictor of two values other than 0 and 1,
+	// counted at its higher value (Label "sex12 = 2").
+	Higher bool
 }
 
 // describe summarizes every raw predictor column of ds by outcome
@@ -37,7 +41,7 @@ func describe(ds *data.Dataset, levels [][]string) []descriptive {
 	K, J := ds.K, len(ds.Categories)
 	weights := ds.Weights
 	var out []descriptive
-	one := func(label string, k int, counts bool, value func(i int) float64) {
+	one := func(label string, k int, counts bool, value func(i int) float64) *descriptive {
 		s := descriptive{Label: label, Counts: counts, N: make([]float64, J+1), Mean: make([]float64, J+1),
 			SD: make([]float64, J+1), Ones: make([]float64, J+1)}
 		m2 := make([]float64, J+1)
@@ -68,6 +72,7 @@ func describe(ds *data.Dataset, levels [][]string) []descriptive {
 			}
 		}
 		out = append(out, s)
+		return &out[len(out)-1]
 	}
 	for k := 0; k < K; k++ {
 		name := ds.Predictors[k]
@@ -88,6 +93,17 @@ func describe(ds *data.Dataset, levels [][]string) []descriptive {
 				binary = false
 				break
 			}
+		}
+		if _, hi, two := runner.TwoValuesOf(ds.X, K, k); two && !binary {
+			// Two other values (1 and 2): counted at the higher, as a 0/1
+			// column at 1 (runner's two-values rule).
+			one(name+" = "+numfmt.Num(hi), k, true, func(i int) float64 {
+				if ds.X[i*K+k] == hi {
+					return 1
+				}
+				return 0
+			}).Higher = true
+			continue
 		}
 		one(name, k, binary, func(i int) float64 { return ds.X[i*K+k] })
 	}
@@ -137,7 +153,11 @@ func writeDescriptives(d *doc, or *runner.OutcomeResult, sampling bool) {
 		if partly {
 			counted = fmt.Sprintf(" A predictor is summarized over the rows where it is observed: where it is missing in some rows of a category, the cell names the %[1]s it counts, \"k of n (share)\" for a count (n the %[1]s with the predictor observed, the share's denominator) and \"mean (SD), n %[1]s\" for a mean.", rowsWord)
 		}
-		d.p("Each predictor in each outcome category: mean (SD) for a numeric predictor; for a 0/1 predictor and for each level of a categorical one, the number of observations with 1 (with that level) and their share of the category's observations.%s%s", counted, weighted)
+		higher := ""
+		if i := slices.IndexFunc(ds, func(s descriptive) bool { return s.Higher }); i >= 0 {
+			higher = fmt.Sprintf("; for a numeric predictor of two other values, the number with the higher value (%s)", mdText(ds[i].Label))
+		}
+		d.p("Each predictor in each outcome category: mean (SD) for a numeric predictor; for a 0/1 predictor and for each level of a categorical one, the number of observations with 1 (with that level)%s and their share of the category's observations.%s%s", higher, counted, weighted)
 		head := []string{"Predictor"}
 		for _, l := range lv {
 			head = append(head, l)

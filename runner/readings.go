@@ -265,6 +265,14 @@ func columnValues(x []float64, width, c int) valuePair {
 	return p
 }
 
+// TwoValuesOf reports whether column c of the row-major rows x, of width
+// columns, takes two values (missing values, NaN, aside), and which, the
+// lower first: the two-values rule (valuePair) for a table of the data.
+func TwoValuesOf(x []float64, width, c int) (lo, hi float64, ok bool) {
+	p := columnValues(x, width, c)
+	return p.v[0], p.v[1], p.Two()
+}
+
 // columnPairs applies columnValues to every column of fd's rows.
 func columnPairs(fd *fit.Data) []valuePair {
 	K := len(fd.Predictors)
