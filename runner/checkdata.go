@@ -51,6 +51,9 @@ func CheckData(p *plan.Plan) ([]string, error) {
 			or.Observed = run.observed
 		}
 		warnings = append(warnings, pointWarnings(r.Outcome, or.AsRead())...)
+		if w := hiddenWarning(r.Outcome, p.Data.File, ld.Data.Sheet); w != "" {
+			warnings = append(warnings, w)
+		}
 		used, err := a.rowsFitted(r, ld.Data, run)
 		if err != nil {
 			return nil, err
@@ -100,6 +103,11 @@ func CheckData(p *plan.Plan) ([]string, error) {
 				return nil, err
 			}
 			warnings = append(warnings, nr.notPredictedWarnings(r.Outcome)...)
+			if nr.Rows != nil {
+				if w := hiddenWarning(r.Outcome, "inference.predict: "+p.Inference.Predict, nr.Rows.Sheet); w != "" {
+					warnings = append(warnings, w)
+				}
+			}
 		}
 	}
 	if err := checkHypothesisNames(p, scopes); err != nil {
@@ -122,6 +130,17 @@ func CheckData(p *plan.Plan) ([]string, error) {
 		}
 	}
 	return warnings, nil
+}
+
+// hiddenWarning is check's warning of the rows and used columns of a
+// workbook's sheet (of file, as the plan writes it) hidden from view and read as data
+// (SheetRead.HiddenNote, which fit's Data line, the report and run.json
+// say too); "" when none are, or the file is no workbook.
+func hiddenWarning(outcome, file string, s *data.SheetRead) string {
+	if s == nil || s.HiddenNote() == "" {
+		return ""
+	}
+	return fmt.Sprintf("outcome %s: %s, %s: %s", outcome, file, s.Where(), s.HiddenNote())
 }
 
 // checkDesignAsRun checks outcome r's design before any fit as run does

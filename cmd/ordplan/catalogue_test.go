@@ -2086,6 +2086,13 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{"ordplan: sheets.xlsx:3: cell E3 holds \"checked 2024-03\", right of the table, whose header (row 1) names 3 columns, up to column C: if it is a note beside the data, move or delete it; if it is data, give its column a name in the header row\n"}},
 		{id: "X25", name: "a workbook column the fit reads that the sheet hides (read, and named)", args: fitArgs(d("hiddencol.xlsx"), "--predictors", "a,b", "--sheet", "survey", "--header-row", "3"), code: 0,
 			want: []string{`hiddencol.xlsx, sheet "survey": 120 rows read, 120 used; no rows dropped for missing values; column "a" (column B), which is read, is hidden in the sheet; it was read as data like the others (a hidden column is often an old version kept out of view: check that it is the column meant)`}},
+		{id: "X25", name: "a hidden column the plan reads: check warns", args: []string{"check"}, code: 0,
+			plan: edit("file: d.csv", "file: hiddencol.xlsx\n  sheet: survey\n  header_row: 3"), want: []string{"plan is valid"},
+			check: func(t *testing.T, dir, out, errs string) {
+				if want := `: outcome y: hiddencol.xlsx, sheet "survey": column "a" (column B), which is read, is hidden in the sheet; it was read as data like the others (a hidden column is often an old version kept out of view: check that it is the column meant)`; !strings.Contains(errs, want) {
+					t.Errorf("want %q in\n%s", want, errs)
+				}
+			}},
 		{id: "X25", name: "workbook parts: the sheet of each part and the hidden columns read named", args: []string{"fit", "--outcome", "y", "--predictors", "a,b", "--sheet", "survey", "--header-row", "3", "--parts", "book.xlsx,hiddencol.xlsx"}, setup: inDataFolder, code: 0,
 			want: []string{`parts book.xlsx, hiddencol.xlsx: 240 rows read, 240 used; no rows dropped for missing values; the workbook parts were read from book.xlsx, sheet "survey"; hiddencol.xlsx, sheet "survey" (column "a" (column B), which is read, is hidden in the sheet; it was read as data like the others (a hidden column is often an old version kept out of view: check that it is the column meant))`}},
 		{id: "X25", name: "workbook parts in a plan: run.json names each part's sheet and its hidden columns read, the report too", args: []string{"run"}, plan: edit("  file: d.csv\n", "  parts: [book.xlsx, hiddencol.xlsx]\n  sheet: survey\n  header_row: 3\n"), code: 0,
