@@ -106,6 +106,34 @@ func registrationItems(dir string) []badInput {
 					}
 				}
 			}},
+		{id: "R18", name: "run: the registered plan run again on other data in its output folder", args: []string{"run"}, plan: edit("file: d.csv", "file: grow.csv"), code: 0,
+			setup: func(t *testing.T, dir, id string) {
+				src, _ := os.ReadFile(filepath.Join(dir, "d.csv"))
+				os.WriteFile(filepath.Join(dir, "grow.csv"), src, 0o644)
+				p := filepath.Join(dir, id+".yaml")
+				os.WriteFile(p, []byte(edit("file: d.csv", "file: grow.csv")), 0o644)
+				freezeAs(t, dir, id, edit("file: d.csv", "file: grow.csv"))
+				if o, e, code := runCLI("run", p, "--out", filepath.Join(dir, id+"-out"), "--quiet"); code != 0 {
+					t.Fatalf("first run: exit %d\n%s%s", code, o, e)
+				}
+				lines := strings.SplitAfter(string(src), "\n")
+				os.WriteFile(filepath.Join(dir, "grow.csv"), []byte(string(src)+strings.Join(lines[1:11], "")), 0o644) // rows added
+			},
+			want: []string{"registered plan: matches R18.lock.json (frozen 2026-12-01T09:00:00Z)\n" +
+				"note: the output folder held 1 run of this registered plan on other data: if these data extend those, the data have been analysed more than once, and the p-values make no allowance for it; the report lists it\n"}},
+		{id: "R18", name: "run: a plan changed after a run of the registered plan in its output folder", args: []string{"run"}, code: 0,
+			plan: strings.Replace(goodPlan, "{by: aic}", "{by: bic}", 1) + "deviations:\n  - key: rules[1].choose.by\n    reason: as the protocol says\n",
+			setup: func(t *testing.T, dir, id string) {
+				p := filepath.Join(dir, id+".yaml")
+				os.RemoveAll(filepath.Join(dir, id+"-out"))
+				os.WriteFile(p, []byte(goodPlan), 0o644)
+				freezeAs(t, dir, id, goodPlan)
+				if o, e, code := runCLI("run", p, "--out", filepath.Join(dir, id+"-out"), "--quiet"); code != 0 {
+					t.Fatalf("run of the registered plan: exit %d\n%s%s", code, o, e)
+				}
+			},
+			want: []string{"registered plan: 1 deviation from R18.lock.json, each with a stated reason\n",
+				"note: the output folder held 1 run of the registered plan unchanged: its results existed before the plan was changed, so the deviations may have been chosen after seeing them; the report lists it\n"}},
 		{id: "R2", name: "lock file edited by hand", args: []string{"check"}, plan: goodPlan, code: 1,
 			setup: func(t *testing.T, dir, id string) {
 				lp := freezeAs(t, dir, id, goodPlan)

@@ -140,6 +140,27 @@ func printRegistration(w io.Writer, st *lock.Status, changes bool) {
 	}
 }
 
+// earlierRegisteredNote says, after run's registration lines, that the
+// output folder held runs of the registered plan unchanged
+// (runner.EarlierRegisteredRuns), which the report lists: of a plan that
+// departs from its lock, results that existed before it was changed; of
+// one that matches it, results of the same analysis on other data; ""
+// when it held none.
+func earlierRegisteredNote(st *lock.Status, runs []runner.EarlierRun) string {
+	if st == nil || len(runs) == 0 {
+		return ""
+	}
+	n := words.Count(len(runs), "run", "runs")
+	their, them := "its results", "it"
+	if len(runs) > 1 {
+		their, them = "their results", "them"
+	}
+	if st.State == lock.StateMatches {
+		return fmt.Sprintf("the output folder held %s of this registered plan on other data: if these data extend those, the data have been analysed more than once, and the p-values make no allowance for it; the report lists %s", n, them)
+	}
+	return fmt.Sprintf("the output folder held %s of the registered plan unchanged: %s existed before the plan was changed, so the deviations may have been chosen after seeing them; the report lists %s", n, their, them)
+}
+
 // earlierLocksNotes say, after run's registration lines, that the output
 // folder held runs made with no lock (before the plan was registered) or
 // under another lock of the plan than its lock now

@@ -178,6 +178,9 @@ func cmdRun(args []string, stdout, stderr io.Writer) int {
 		return fail(stderr, err)
 	}
 	printRegistration(stdout, reg, false)
+	if n := earlierRegisteredNote(reg, res.EarlierRegistered); n != "" {
+		fmt.Fprintf(stdout, "note: %s\n", n)
+	}
 	for _, n := range earlierLocksNotes(reg, res.UnderEarlierLocks) {
 		fmt.Fprintf(stdout, "note: %s\n", n)
 	}
