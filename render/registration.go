@@ -280,14 +280,24 @@ func writeEarlierRegistered(d *doc, earlier []runner.EarlierRun) {
 		d.p("This output folder held no earlier run of the registered plan unchanged (the program knows only the runs of this folder, its run.json and those kept under earlier/).")
 		return
 	}
+	writeHeldRegistered(d, earlier, "of the registered plan unchanged", func(one bool) string {
+		return sing(one, "its results", "their results") + " existed before this run departed from the plan, so the deviations above may have been chosen after seeing them."
+	})
+}
+
+// writeHeldRegistered lists runs of the registered plan that the output
+// folder held, each by the SHA-256 of its decisions.json, after a lead
+// saying what they are (heldRuns) and why says why they matter (in the
+// words for one run or several).
+func writeHeldRegistered(d *doc, earlier []runner.EarlierRun, what string, why func(one bool) string) {
 	items := make([]string, len(earlier))
 	same := 0
 	for i, e := range earlier {
 		items[i] = earlierRunItem(e, &same)
 	}
-	lead, one := heldRuns(len(earlier), same, "of the registered plan unchanged")
-	d.p("%s: %s existed before this run departed from the plan, so the deviations above may have been chosen after seeing them. %s named by the SHA-256 of %s decisions.json (in this folder's run.json or under earlier/):",
-		lead, sing(one, "its results", "their results"), sing(one, "It is", "They are"), sing(one, "its", "their"))
+	lead, one := heldRuns(len(earlier), same, what)
+	d.p("%s: %s %s named by the SHA-256 of %s decisions.json (in this folder's run.json or under earlier/):",
+		lead, why(one), sing(one, "It is", "They are"), sing(one, "its", "their"))
 	d.list(items)
 }
 
@@ -300,15 +310,9 @@ func writeEarlierLooks(d *doc, earlier []runner.EarlierRun) {
 	if len(earlier) == 0 {
 		return
 	}
-	items := make([]string, len(earlier))
-	same := 0
-	for i, e := range earlier {
-		items[i] = earlierRunItem(e, &same)
-	}
-	lead, one := heldRuns(len(earlier), same, "of this registered plan on other data")
-	d.p("%s: %s of the same analysis existed before this run. If these data extend those (rows added as the study went on), the data have been analysed more than once, and the p-values and intervals below make no allowance for it (see Assumptions and limits). %s named by the SHA-256 of %s decisions.json (in this folder's run.json or under earlier/):",
-		lead, sing(one, "its results", "their results"), sing(one, "It is", "They are"), sing(one, "its", "their"))
-	d.list(items)
+	writeHeldRegistered(d, earlier, "of this registered plan on other data", func(one bool) string {
+		return sing(one, "its results", "their results") + " of the same analysis existed before this run. If these data extend those (rows added as the study went on), the data have been analysed more than once, and the p-values and intervals below make no allowance for it (see Assumptions and limits)."
+	})
 }
 
 // earlierLooksSentence is the limit of a run of the registered plan whose
