@@ -295,18 +295,18 @@ func TestWorkerWithUnusableCacheRefuses(t *testing.T) {
 // gets the jobs done, every result equal to the fit made here.
 func TestWorkerFaultStopsRunOrIsRetried(t *testing.T) {
 	q := newTestQueue(t, 90*time.Second, fit.ParallelEffects, fit.NonparallelEffects)
-	bad := func(url, name string) *LogBuffer {
+	bad := func(url, name string, pause time.Duration) *LogBuffer {
 		ctx, cancel := context.WithCancel(context.Background())
 		log := &LogBuffer{}
 		w := &Worker{Client: connect(t, ctx, url), Name: name, CacheDir: t.TempDir(), AckWait: 5 * time.Second, Log: log,
-			Limits: Limits{Predictors: 1}}
+			Limits: Limits{Predictors: 1}, faultPause: pause}
 		done := make(chan struct{})
 		go func() { defer close(done); w.Run(ctx) }()
 		t.Cleanup(func() { cancel(); <-done })
 		waitFor(t, 10*time.Second, name+" ready", func() bool { return strings.Contains(log.String(), "ready") })
 		return log
 	}
-	log := bad(q.url, "w-bad")
+	log := bad(q.url, "w-bad", 50*time.Millisecond)
 	co := q.coordinator(t, nil)
 	res, errs := co.Execute(q.jobs)
 	var fe *FaultError
@@ -318,14 +318,24 @@ func TestWorkerFaultStopsRunOrIsRetried(t *testing.T) {
 			t.Errorf("job %d: result %v, error %v", i, res[i] != nil, err)
 		}
 	}
-	if !strings.Contains(log.String(), "left for another try") {
-		t.Errorf("no retry in the worker's log:\n%s", log)
+	if !strings.Contains(log.String(), "left for another try; this worker takes its next job in 50ms, so that another can take this one") ||
+		!strings.Contains(log.String(), "left for another try; this worker takes its next job in 100ms,") {
+		t.Errorf("no retry, or no pause growing, in the worker's log:\n%s", log)
 	}
 
-	// A good worker beside the bad one: every job is done, as here.
+	// A good worker beside the bad one, busy with a job for 2.5 s when the
+	// bad one fails the other: the bad worker waits 2 s before its next
+	// job, so the good one takes it, and every job is done, as here. The
+	// bad worker took the job again after 1 s, and again, and the run
+	// stopped on its third fault.
 	q2 := newTestQueue(t, 90*time.Second, fit.ParallelEffects, fit.NonparallelEffects)
-	bad(q2.url, "w-bad2")
-	startWorker(t, q2.url, "w-good", 5*time.Second, 0)
+	blog := bad(q2.url, "w-bad2", 0)
+	glog := startWorker(t, q2.url, "w-good", 5*time.Second, 2500*time.Millisecond)
+	defer func() {
+		if t.Failed() {
+			t.Logf("bad:\n%s\ngood:\n%s", blog, glog)
+		}
+	}()
 	co2 := q2.coordinator(t, nil)
 	res2, errs2 := co2.Execute(q2.jobs)
 	if co2.Err() != nil {

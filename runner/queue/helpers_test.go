@@ -86,7 +86,9 @@ func startWorker(t *testing.T, url, name string, ackWait, delay time.Duration) *
 	ctx, cancel := context.WithCancel(context.Background())
 	c := connect(t, ctx, url)
 	log := &LogBuffer{}
-	w := &Worker{Client: c, Name: name, CacheDir: t.TempDir(), AckWait: ackWait, Delay: delay, Log: log}
+	// A short pause after a fault (faultBackoff) keeps the tests of
+	// faults fast.
+	w := &Worker{Client: c, Name: name, CacheDir: t.TempDir(), AckWait: ackWait, Delay: delay, Log: log, faultPause: 50 * time.Millisecond}
 	done := make(chan struct{})
 	go func() {
 		defer close(done)

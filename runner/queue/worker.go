@@ -49,6 +49,11 @@ type Worker struct {
 	refusedPause time.Duration
 	// build, when set, replaces Build as the worker's (tests).
 	build string
+	// faults counts the faults in a row (faultBackoff); faultPause, when
+	// set, replaces faultPause (tests).
+	faults      atomic.Int64
+	faultPause  time.Duration
+	pausedUntil atomic.Int64 // no job is taken before (Unix ns; faultBackoff)
 
 	cache    *dataCache
 	parts    *partitionCache
@@ -163,6 +168,9 @@ func (c *Client) runningAckWait(ctx context.Context) (time.Duration, error) {
 // can start it, so no job waits behind another in a worker's buffer.
 func (w *Worker) loop(ctx context.Context, cons jetstream.Consumer) {
 	for ctx.Err() == nil {
+		if !w.waitPause(ctx) {
+			continue
+		}
 		batch, err := cons.Fetch(1, jetstream.FetchMaxWait(time.Second))
 		if err != nil {
 			if ctx.Err() == nil {
@@ -320,8 +328,42 @@ func (w *Worker) putBack(msg jetstream.Msg, refusals int) (string, error) {
 }
 
 // faultRetryDelay is how long a job whose computation failed through a
-// fault of the worker waits before it is delivered again.
-const faultRetryDelay = time.Second
+// fault of the worker waits before it is delivered again; faultPause is
+// how long the worker then waits before it takes a job, doubled at each
+// fault in a row up to maxFaultPause (faultBackoff), so that a worker that
+// fails every job (its cache folder full, limits below what the jobs
+// ask) leaves them to the others instead of spending their deliveries.
+const (
+	faultRetryDelay = time.Second
+	faultPause      = 2 * time.Second
+	maxFaultPause   = 30 * time.Second
+)
+
+// faultBackoff counts a fault and returns how long the worker waits
+// before its next job: faultPause (or the tests' w.faultPause), doubled
+// for each fault in a row since the last job done without one.
+func (w *Worker) faultBackoff() time.Duration {
+	n := w.faults.Add(1)
+	pause := faultPause
+	if w.faultPause > 0 {
+		pause = w.faultPause
+	}
+	for ; n > 1 && pause < maxFaultPause; n-- {
+		pause *= 2
+	}
+	pause = min(pause, maxFaultPause)
+	w.pausedUntil.Store(time.Now().Add(pause).UnixNano())
+	return pause
+}
+
+// waitPause waits, before a fetch, for the pause after a fault to end
+// (every job slot of the worker waits); false when ctx ended first.
+func (w *Worker) waitPause(ctx context.Context) bool {
+	if d := time.Until(time.Unix(0, w.pausedUntil.Load())); d > 0 {
+		return sleep(ctx, d)
+	}
+	return true
+}
 
 // handle computes one job, stores its reply and acknowledges it. A job
 // without a valid seal, or whose give-back headers do not match theirs
@@ -389,7 +431,8 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 		// stored as the reply only at the last delivery before the
 		// poison rule.
 		stop()
-		w.logf("%s: %s (delivery %d; left for another try)", t.jobName(), r.Err, delivered)
+		pause := w.faultBackoff()
+		w.logf("%s: %s (delivery %d; left for another try; this worker takes its next job in %s, so that another can take this one)", t.jobName(), r.Err, delivered, pause)
 		msg.NakWithDelay(faultRetryDelay)
 		return
 	}
@@ -417,6 +460,9 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 		msg.NakWithDelay(time.Second)
 		return
 	default:
+		if !r.Fault {
+			w.faults.Store(0)
+		}
 		status := "ok"
 		if r.Err != "" {
 			status = "error: " + r.Err
