@@ -35,4 +35,11 @@ func TestHypothesisPartOfColumn(t *testing.T) {
 	if got = partsOfColumns(or); len(got) != 1 || !strings.HasPrefix(got[0], "`dose_mg = dose_mg.log` restricts terms dose_mg and dose_mg.log, which data column dose_mg makes together with dose_mg.sqrt: it asks what dose_mg and dose_mg.log add while dose_mg.sqrt is held fixed") {
 		t.Errorf("two of three: %q", got)
 	}
+	// Part of a spline basis: the straight-line column alone.
+	b := []runner.ColumnTerms{{Column: "as", Terms: []string{"as.1", "as.2", "as.3"}, Named: []string{"as.1"}}}
+	or = &runner.OutcomeResult{Hypotheses: []runner.HypothesisResult{{Text: "as.1 = 0", PartOfBasis: b}}}
+	want = "`as.1 = 0` restricts column as.1 of the spline basis of term as (its columns as.1, as.2 and as.3), holding the others fixed: a basis column's coefficient has no reading of its own (it depends on how the basis is written), so this tests neither whether the term is associated with the outcome nor whether its curve is straight. For the first, write `as = 0`; for the second, `as.2 = 0; as.3 = 0`, every column but the straight line as.1."
+	if got = partsOfColumns(or); len(got) != 1 || got[0] != want {
+		t.Errorf("spline basis:\n%q\nwant\n%q", got, want)
+	}
 }

@@ -41,6 +41,13 @@ func partsOfColumns(or *runner.OutcomeResult) []string {
 				out = append(out, partOfColumnSentence(or, h.Text, c))
 			}
 		}
+		for _, c := range h.PartOfBasis {
+			if key := h.Text + "\x00basis\x00" + c.Column; !seen[key] {
+				seen[key] = true
+				tested := slices.ContainsFunc(or.TermTests, func(t runner.TermTest) bool { return t.Term == c.Column })
+				out = append(out, c.BasisSentence(h.Text, tested, mdCode, mdText))
+			}
+		}
 	}
 	return out
 }

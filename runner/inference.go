@@ -39,6 +39,12 @@ type HypothesisResult struct {
 	// which the column cannot do, and the test of the column as a whole
 	// is ColumnLabel's row of the tests of each term (partOfColumn).
 	PartOfColumn []ColumnTerms `json:"part_of_column,omitempty"`
+	// PartOfBasis lists each spline term of which the hypothesis
+	// restricts some basis columns by name, neither all of them nor all
+	// but the first (the straight line, whose restriction tests that the
+	// curve is straight): Column the term, Terms its columns, Named those
+	// restricted (partOfBasis, ColumnTerms.BasisSentence).
+	PartOfBasis []ColumnTerms `json:"part_of_basis,omitempty"`
 }
 
 // ColumnTerms is a data column that makes several terms: the terms
@@ -80,10 +86,71 @@ func (c ColumnTerms) Sentence(text string, tested bool, code, name func(string) 
 	return s + fmt.Sprintf(" For that, write the hypothesis as %s.", code(strings.Join(whole, "; ")))
 }
 
+// BasisSentence says, for a spline term c (partOfBasis), what hypothesis
+// text, which restricts some of its basis columns, tests and what would
+// test the term or the curve's straightness; code writes a hypothesis,
+// name a column or term. The one wording of the report and of the
+// warning of check and run (PartOfColumnWarnings).
+func (c ColumnTerms) BasisSentence(text string, tested bool, code, name func(string) string) string {
+	cols := "column"
+	if len(c.Named) > 1 {
+		cols = "columns"
+	}
+	s := fmt.Sprintf("%s restricts %s %s of the spline basis of term %s (its columns %s), holding the others fixed: a basis column's coefficient has no reading of its own (it depends on how the basis is written), so this tests neither whether the term is associated with the outcome nor whether its curve is straight.",
+		code(text), cols, words.AndList(words.Each(c.Named, name)), name(c.Column), words.AndList(words.Each(c.Terms, name)))
+	whole := code(c.Column + " = 0")
+	if tested {
+		whole += fmt.Sprintf(" (the row \"%s\" of the tests of each term)", name(c.Column))
+	}
+	var curved []string
+	for _, t := range c.Terms[1:] {
+		curved = append(curved, t+" = 0")
+	}
+	return s + fmt.Sprintf(" For the first, write %s; for the second, %s, every column but the straight line %s.", whole, code(strings.Join(curved, "; ")), name(c.Terms[0]))
+}
+
+// partOfBasis lists the spline terms of dz (their first column the value
+// itself, the others the curve) of which the hypothesis names some
+// columns, neither all nor all but the first; nil for none.
+func partOfBasis(text string, dz *design.Design) []ColumnTerms {
+	if dz == nil {
+		return nil
+	}
+	var named []string
+	for _, part := range strings.Split(text, ";") {
+		if name, ok := fit.WholeTermPart(part); ok && dz.Term(name) >= 0 {
+			continue // the whole term
+		}
+		names, _ := fit.HypothesisNames(part)
+		for _, n := range names {
+			col, _, _ := strings.Cut(n, "[")
+			named = append(named, col)
+		}
+	}
+	var out []ColumnTerms
+	for _, t := range dz.Terms {
+		if t.Kind != design.KindNumeric || !t.Transform.Spline() || len(t.Columns) < 2 {
+			continue
+		}
+		c := ColumnTerms{Column: t.Name, Terms: slices.Clone(t.Columns)}
+		for _, col := range t.Columns {
+			if slices.Contains(named, col) {
+				c.Named = append(c.Named, col)
+			}
+		}
+		straight := len(c.Named) == len(t.Columns)-1 && !slices.Contains(c.Named, t.Columns[0])
+		if len(c.Named) > 0 && len(c.Named) < len(t.Columns) && !straight {
+			out = append(out, c)
+		}
+	}
+	return out
+}
+
 // PartOfColumnWarnings are the warnings of check and run for outcome's
 // design dz: one for each hypothesis of p restricting some, not all, of
-// the terms a data column makes (partOfColumn), at its place, as the
-// report words it (ColumnTerms.Sentence).
+// the terms a data column makes (partOfColumn), or part of a spline
+// basis (partOfBasis), at its place, as the report words it
+// (ColumnTerms.Sentence, ColumnTerms.BasisSentence).
 func PartOfColumnWarnings(p *plan.Plan, outcome string, dz *design.Design) []string {
 	var out []string
 	tested := p.Inference.TermTests != plan.TermTestsNone
@@ -92,6 +159,9 @@ func PartOfColumnWarnings(p *plan.Plan, outcome string, dz *design.Design) []str
 	for i, h := range p.Inference.Hypotheses {
 		for _, c := range partOfColumn(h.Text, dz) {
 			out = append(out, fmt.Sprintf("outcome %s: inference.hypotheses[%d] (line %d): %s", outcome, i, h.Line, c.Sentence(h.Text, tested, quote, same)))
+		}
+		for _, c := range partOfBasis(h.Text, dz) {
+			out = append(out, fmt.Sprintf("outcome %s: inference.hypotheses[%d] (line %d): %s", outcome, i, h.Line, c.BasisSentence(h.Text, tested, quote, same)))
 		}
 	}
 	return out
@@ -505,9 +575,9 @@ func hypothesisTests(h plan.Hypothesis, or *OutcomeResult, level float64) []Hypo
 		out = append(out, HypothesisResult{Text: h.Text, Line: h.Line, Model: f.ID, Test: fit.WaldLinear(f.Result, hy), Contrasts: fit.Contrasts(f.Result, hy, level)})
 	}
 	if len(out) > 0 {
-		where, part := hypothesisHoldsAt(h.Text, or), partOfColumn(h.Text, or.Design)
+		where, part, basis := hypothesisHoldsAt(h.Text, or), partOfColumn(h.Text, or.Design), partOfBasis(h.Text, or.Design)
 		for i := range out {
-			out[i].HoldsAt, out[i].PartOfColumn = where, part
+			out[i].HoldsAt, out[i].PartOfColumn, out[i].PartOfBasis = where, part, basis
 		}
 	}
 	if len(out) == 0 {

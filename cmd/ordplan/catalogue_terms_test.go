@@ -332,6 +332,17 @@ func termItems(dir string) []badInput {
 				if err != nil || !strings.Contains(string(rep), "`x = 0` restricts term x, which data column x makes together with lx") {
 					t.Errorf("report.md does not say it (%v)", err)
 				}
+				// A hypothesis restricting the straight-line column of a
+				// spline basis, not the curve's: said; one restricting every
+				// column but the straight line (is the curve straight?), or
+				// the whole term, is not.
+				sp := filepath.Join(dir, "W40spline.yaml")
+				os.WriteFile(sp, []byte(termsEdit("[site, x]", "[site, {name: xs, column: x, spline: {quantiles: [0.1, 0.5, 0.9]}}]", "rules:", "inference:\n  hypotheses: [\"xs.1 = 0\", \"xs.2 = 0\", \"xs = 0\"]\nrules:")), 0o644)
+				_, e, code = runCLI("check", sp)
+				basis := `warning: ` + sp + `: outcome y: inference.hypotheses[0] (line 10): "xs.1 = 0" restricts column xs.1 of the spline basis of term xs (its columns xs.1 and xs.2), holding the others fixed: a basis column's coefficient has no reading of its own (it depends on how the basis is written), so this tests neither whether the term is associated with the outcome nor whether its curve is straight. For the first, write "xs = 0" (the row "xs" of the tests of each term); for the second, "xs.2 = 0", every column but the straight line xs.1.` + "\n"
+				if code != 0 || !strings.Contains(e, basis) || strings.Count(e, "restricts") != 1 {
+					t.Errorf("check, a spline basis column: exit %d, want %q alone in\n%s", code, basis, e)
+				}
 				// Without the tests of each term, the hypothesis alone.
 				os.WriteFile(pl, []byte(termsEdit("[site, x]", "[site, x, {name: lx, column: x, log: {shift: 1}}]", "rules:", "inference:\n  hypotheses: [\"x = 0\"]\n  term_tests: none\nrules:")), 0o644)
 				if _, e, code := runCLI("check", pl); code != 0 || !strings.Contains(e, `the outcome. For that, write the hypothesis as "x = 0; lx = 0".`) {
