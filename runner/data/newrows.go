@@ -102,6 +102,13 @@ func LoadNewRows(path string, predictors []string, levels map[string][]string, o
 			r.readNumbers(c)
 		}
 	}
+	r.raw = raw
+	for j, c := range cols {
+		r.cols = append(r.cols, usedCol{name: c, index: pos[j]})
+	}
+	if err := r.tableChecks(); err != nil {
+		return nil, err
+	}
 	keep := make([]int, len(opt.Keep)) // the column of each condition, -1: absent
 	var unchecked []int
 	for k, c := range opt.Keep {

@@ -261,6 +261,23 @@ func (r *reader) read(in io.Reader) (*Dataset, error) {
 // (totalsRow), a nested column of a Parquet file (nestedUsed), and points
 // that may separate thousands (thousandsPoints).
 func (r *reader) columnChecks() error {
+	if err := r.tableChecks(); err != nil {
+		return err
+	}
+	for _, c := range r.cols {
+		if err := r.nestedUsed(c.name, c.index); err != nil {
+			return err
+		}
+	}
+	return r.thousandsPoints()
+}
+
+// tableChecks are the checks of the table as a whole made before its
+// rows are read, on data and on new rows to predict alike: the used
+// columns a worksheet hides (markHidden, which also gives mergedUsed the
+// used columns), and a row of totals at the foot of a worksheet's table
+// (totalsRow) or of a CSV file read whole (csvTotals).
+func (r *reader) tableChecks() error {
 	if sr, ok := r.cr.(*sheetRecords); ok {
 		sr.markHidden(r.cols)
 		if e := sr.totalsRow(r.cols, r.opt.Dialect); e != nil {
@@ -277,12 +294,7 @@ func (r *reader) columnChecks() error {
 			return e
 		}
 	}
-	for _, c := range r.cols {
-		if err := r.nestedUsed(c.name, c.index); err != nil {
-			return err
-		}
-	}
-	return r.thousandsPoints()
+	return nil
 }
 
 // header reads the header line and finds the used columns in it.

@@ -241,3 +241,23 @@ func TestCSVTypedTotals(t *testing.T) {
 		}
 	}
 }
+
+// A file of new rows to predict with a row of totals at its foot is
+// refused as data are, a workbook's too.
+func TestNewRowsTotals(t *testing.T) {
+	dir := t.TempDir()
+	csvPath := filepath.Join(dir, "new.csv")
+	os.WriteFile(csvPath, []byte("a,b,note\n0.5,1,\n0.25,0,\n0.75,1,Total\n"), 0o644)
+	if _, err := LoadNewRows(csvPath, []string{"a", "b"}, nil, Options{}); err == nil || !strings.Contains(err.Error(), `new.csv:4: column "a": line 4 looks like a row of totals`) {
+		t.Errorf("CSV: %v", err)
+	}
+	bookPath := filepath.Join(dir, "new.xlsx")
+	os.WriteFile(bookPath, bookRows(t, [][]any{{"a", "b", "note"}, {0.5, 1}, {0.25, 0}, {0.75, 1, "Total"}}, nil), 0o644)
+	if _, err := LoadNewRows(bookPath, []string{"a", "b"}, nil, Options{Dialect: Dialect{Sheet: "s"}}); err == nil || !strings.Contains(err.Error(), `new.xlsx:4: column "a": row 4 of sheet "s" looks like a row of totals`) {
+		t.Errorf("workbook: %v", err)
+	}
+	os.WriteFile(csvPath, []byte("a,b,note\n0.5,1,\n0.25,0,\n0.7,1,Total\n"), 0o644)
+	if rs, err := LoadNewRows(csvPath, []string{"a", "b"}, nil, Options{}); err != nil || rs.N != 3 {
+		t.Errorf("not the sums: %v", err)
+	}
+}
