@@ -364,8 +364,16 @@ func (bn *batchNotes) check(ctx context.Context, now time.Time) error {
 	removed := "its jobs were removed from the queue"
 	pctx, cancel := context.WithTimeout(context.WithoutCancel(ctx), 10*time.Second)
 	defer cancel()
-	if err := bn.c.jobs.Purge(pctx, jetstream.WithPurgeSubject(JobSubject+"."+bn.id+".>")); err != nil {
-		removed = fmt.Sprintf("its jobs could not be removed from the queue (%v)", err)
+	// Purged twice: a job a refusing worker held during the first purge
+	// is put back on the queue (putBack) a moment later.
+	for k := range 2 {
+		if k > 0 {
+			sleep(pctx, time.Second)
+		}
+		if err := bn.c.jobs.Purge(pctx, jetstream.WithPurgeSubject(JobSubject+"."+bn.id+".>")); err != nil {
+			removed = fmt.Sprintf("its jobs could not be removed from the queue (%v)", err)
+			break
+		}
 	}
 	return fmt.Errorf("only workers that refuse this run's jobs took them for %s: %s, whose secret differs from this coordinator's (or which run another version of ordplan), and no worker with this coordinator's secret was heard from: give those workers the coordinator's secret file (--queue-secret-file) and version, or start one that has them, then run again (the results already made are reused); %s",
 		bn.wait, bn.refusers(), removed)
