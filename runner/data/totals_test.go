@@ -261,3 +261,23 @@ func TestNewRowsTotals(t *testing.T) {
 		t.Errorf("not the sums: %v", err)
 	}
 }
+
+// A workbook of new rows names the hidden columns it reads, and refuses a
+// cell covered by merged cells in a column read.
+func TestNewRowsWorkbookHiddenAndMerged(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "new.xlsx")
+	os.WriteFile(path, bookRows(t, [][]any{{"a", "b"}, {0.5, 1}, {0.25, 0}, {0.7, 0}}, func(f *excelize.File) {
+		f.SetColVisible("s", "B", false)
+	}), 0o644)
+	rs, err := LoadNewRows(path, []string{"a", "b"}, nil, Options{Dialect: Dialect{Sheet: "s"}})
+	if err != nil || rs.Sheet == nil || len(rs.Sheet.HiddenColumns) != 1 || rs.Sheet.HiddenColumns[0].Name != "b" {
+		t.Errorf("hidden column: %v %+v", err, rs)
+	}
+	os.WriteFile(path, bookRows(t, [][]any{{"a", "b"}, {0.5, 1}, {0.25, nil}, {0.7, 0}}, func(f *excelize.File) {
+		f.MergeCell("s", "B2", "B3")
+	}), 0o644)
+	if _, err := LoadNewRows(path, []string{"a", "b"}, nil, Options{Dialect: Dialect{Sheet: "s"}}); err == nil || !strings.Contains(err.Error(), `new.xlsx:3: column "b": cell B3 is one of the merged cells B2:B3`) {
+		t.Errorf("merged: %v", err)
+	}
+}
