@@ -22,7 +22,7 @@ import (
 func main() {
 	out := flag.String("out", "", "write the Markdown report to this new file (default: stdout); an existing file is refused, so that bench/README.md's hand-written history is never overwritten: copy the sections into it by hand")
 	smoke := flag.Bool("smoke", false, "small sizes only (CI smoke test)")
-	only := flag.String("only", "", "run one part only: ingest (reading data files), targets (the fitting engine's speed targets, the table of bench/README.md's first section), iteration (the targets' rows of one Newton iteration against one X'WX plus one kernel pass), links (single fits of the three comparisons, parallel and nonparallel, under every link: CPU seconds and passes over the data against the logit's, at -targets-rows) or grid (the targets' grid row with every model's time and passes over the data, and the grid's peak heap / X, at -targets-grid-rows)")
+	only := flag.String("only", "", "run one part only: ingest (reading data files), targets (the fitting engine's speed targets, the table of bench/README.md's first section), iteration (the targets' rows of one Newton iteration against one X'WX plus one kernel pass), links (single fits of the three comparisons, parallel and nonparallel, under every link: CPU seconds and passes over the data against the logit's, at -targets-rows), grid (the targets' grid row with every model's time and passes over the data, and the grid's peak heap / X, at -targets-grid-rows) or separated (the parallel and nonparallel fits of a 300-level factor that separates: seconds and Newton iterations)")
 	ingestRows := flag.Int("ingest-rows", 1_000_000, "rows of the files the ingest part reads")
 	ingestRepeats := flag.Int("ingest-repeats", 5, "readings of each file by each reader")
 	child := flag.String("ingest-child", "", "(internal) read this file once and print what was measured")
@@ -37,6 +37,7 @@ func main() {
 	memChild := flag.String("memory-child", "", "(internal) fit this model (binary, cumulative/nonparallel, or grid: the 13-model grid through fit.FitGrid) in this process and print its peak memory")
 	memRows := flag.Int("memory-rows", 1_000_000, "(internal) rows of -memory-child")
 	writeOnly := flag.String("write-csv", "", "write the CSV that -only targets times `ordplan fit` on (-targets-rows rows, 10 predictors, two categories) to this file and stop")
+	sepWrite := flag.String("write-separated", "", "write the data and plan of -only separated (sep.csv, sep.yaml) into this folder and stop (for timing `ordplan run FOLDER/sep.yaml`)")
 	flag.Parse()
 	if *writeOnly != "" {
 		if err := writeCSV(*writeOnly, generate(*speedRows, 10, 2, 11)); err != nil {
@@ -51,6 +52,13 @@ func main() {
 	}
 	if *ingestWrite != "" {
 		if _, err := writeIngestFiles(*ingestWrite, *ingestRows, 10); err != nil {
+			fmt.Fprintln(os.Stderr, "bench:", err)
+			os.Exit(1)
+		}
+		return
+	}
+	if *sepWrite != "" {
+		if err := writeSeparated(*sepWrite); err != nil {
 			fmt.Fprintln(os.Stderr, "bench:", err)
 			os.Exit(1)
 		}
@@ -94,6 +102,10 @@ func main() {
 	}
 	if *only == "links" {
 		linksReport(w, *speedRows, *linksRepeats)
+		return
+	}
+	if *only == "separated" {
+		separatedReport(w)
 		return
 	}
 	if *only == "targets" {

@@ -2,7 +2,11 @@ package fit
 
 import (
 	"math"
+	"slices"
 
+	"gonum.org/v1/gonum/blas"
+	"gonum.org/v1/gonum/blas/blas64"
+	"gonum.org/v1/gonum/lapack/lapack64"
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -146,7 +150,8 @@ func newtonLoopStop(theta0 []float64, maxIter int, ev evalFunc, stop stopFunc) n
 		g, H := a.g, a.H
 		st.theta, st.ll, st.grad, st.hess, st.iters = theta, ll, g, H, it
 		st.minLogP, st.minKnown = a.minLogP, a.minKnown
-		d, dec, pd := newtonDirection(H, g)
+		d, dec, c := newtonStep(H, g)
+		pd := c == definite
 		if !pd {
 			st.repaired++
 		}
@@ -160,6 +165,10 @@ func newtonLoopStop(theta0 []float64, maxIter int, ev evalFunc, stop stopFunc) n
 			}
 			st.converged = true
 			st.reason = "converged"
+			return st
+		}
+		if rangeExhausted(c, dec, scale) {
+			st.reason = rangeExhaustedReason
 			return st
 		}
 		prevSmall = pd && dec <= 1e-6*scale
@@ -283,14 +292,60 @@ func addScaled(x, d []float64, s float64) []float64 {
 	return out
 }
 
-// newtonDirection solves (-H) d = g. When -H is not positive definite it is
-// repaired on the unit-diagonal scale by reflecting and flooring the
-// eigenvalues. It returns d, the decrement g'd and whether -H was positive
-// definite.
+// curvature is what newtonStep found of the information -H.
+type curvature int
+
+const (
+	// definite: -H is positive definite; the step is Newton's.
+	definite curvature = iota
+	// semidefinite: -H is positive semidefinite to rounding and singular,
+	// the score in its range (see semidefiniteStep); the step is Newton's
+	// on that range.
+	semidefinite
+	// repaired: -H is indefinite (or the score has a slope along a
+	// direction of zero curvature); the step is on the repaired spectrum.
+	repaired
+)
+
+// rangeExhausted says whether Newton iterations end, unconverged, at a
+// point whose information is singular (c semidefinite, the step Newton's on
+// its range): when the decrement is at most 1e-16 |LL| (scale), the bound
+// at which the rule ends at a positive definite information. The
+// log-likelihood can then gain no more than rounding along the range (about
+// half the decrement), and along the other directions it has neither slope
+// nor curvature: where parameters diverge (separation), the iterations
+// would otherwise go on, each step moving them further while the
+// log-likelihood stays the same to rounding, until the iteration limit or
+// until no step raises it. The fit is not converged: finish reads the
+// singular information (no finite maximum, or a maximum not reached).
+func rangeExhausted(c curvature, dec, scale float64) bool {
+	return c == semidefinite && dec <= 1e-16*scale
+}
+
+// rangeExhaustedReason is the reason a Newton run ends by rangeExhausted.
+const rangeExhaustedReason = "the information is singular and the log-likelihood rises no further along the directions it informs"
+
+// newtonDirection solves (-H) d = g (see newtonStep). It returns d, the
+// decrement g'd and whether -H was positive definite.
 func newtonDirection(H, g []float64) ([]float64, float64, bool) {
+	d, dec, c := newtonStep(H, g)
+	return d, dec, c == definite
+}
+
+// newtonStep solves (-H) d = g on the unit-diagonal scale. When -H is
+// positive semidefinite and singular, as where parameters diverge (the
+// curvature along them vanishing with the score) or where a level's rows
+// inform only some of the equations or a combination of them in a
+// nonparallel fit (no curvature at all along the others), the step is
+// Newton's on the range of -H (semidefiniteStep: a pivoted Cholesky
+// factorization, the cost of one Cholesky factorization). When -H is
+// indefinite it is repaired by reflecting and flooring the eigenvalues
+// (a full eigendecomposition, many times the cost). It returns d, the
+// decrement g'd and what it found of -H.
+func newtonStep(H, g []float64) ([]float64, float64, curvature) {
 	P := len(g)
 	if P == 0 {
-		return nil, 0, true
+		return nil, 0, definite
 	}
 	// Work on the unit-diagonal scale: predictors in any units give the
 	// same conditioning.
@@ -302,6 +357,10 @@ func newtonDirection(H, g []float64) ([]float64, float64, bool) {
 		}
 		s[i] = 1 / math.Sqrt(v)
 	}
+	gs := make([]float64, P)
+	for i := range gs {
+		gs[i] = g[i] * s[i]
+	}
 	sc := mat.NewSymDense(P, nil)
 	for i := 0; i < P; i++ {
 		for j := i; j < P; j++ {
@@ -310,27 +369,31 @@ func newtonDirection(H, g []float64) ([]float64, float64, bool) {
 	}
 	var ch mat.Cholesky
 	if ch.Factorize(sc) {
-		gs := make([]float64, P)
-		for i := range gs {
-			gs[i] = g[i] * s[i]
-		}
 		x := mat.NewVecDense(P, nil)
-		if err := ch.SolveVecTo(x, mat.NewVecDense(P, gs)); err == nil {
+		if err := ch.SolveVecTo(x, mat.NewVecDense(P, slices.Clone(gs))); err == nil {
 			d := make([]float64, P)
 			for i := range d {
 				d[i] = x.AtVec(i) * s[i]
 			}
-			return d, dot(g, d), true
+			return d, dot(g, d), definite
 		}
 	}
-	// Not positive definite: modify the spectrum of the scaled matrix.
+	if !eigenRepairOnly {
+		if ds, ok := semidefiniteStep(sc, gs); ok {
+			for i := range ds {
+				ds[i] *= s[i]
+			}
+			return ds, dot(g, ds), semidefinite
+		}
+	}
+	// Indefinite: modify the spectrum of the scaled matrix.
 	var es mat.EigenSym
 	if !es.Factorize(sc, true) {
 		d := make([]float64, P)
 		for i := range d {
 			d[i] = 1e-3 * g[i] * s[i] * s[i]
 		}
-		return d, dot(g, d), false
+		return d, dot(g, d), repaired
 	}
 	vals := es.Values(nil)
 	var vecs mat.Dense
@@ -340,10 +403,6 @@ func newtonDirection(H, g []float64) ([]float64, float64, bool) {
 		maxv = math.Max(maxv, math.Abs(v))
 	}
 	floor := math.Max(1e-8*maxv, 1e-12)
-	gs := make([]float64, P)
-	for i := range gs {
-		gs[i] = g[i] * s[i]
-	}
 	ds := make([]float64, P)
 	for k, v := range vals {
 		v = math.Max(math.Abs(v), floor)
@@ -360,7 +419,87 @@ func newtonDirection(H, g []float64) ([]float64, float64, bool) {
 	for i := range d {
 		d[i] = ds[i] * s[i]
 	}
-	return d, dot(g, d), false
+	return d, dot(g, d), repaired
+}
+
+// eigenRepairOnly, set by tests alone, makes newtonStep repair every
+// information that is not positive definite by its eigenvalues (never
+// semidefinite), as it did before semidefiniteStep: the rule then runs as
+// it did then.
+var eigenRepairOnly = false
+
+// semidefiniteStep is the Newton step (scaled coordinates) on the range of
+// the scaled information A (n x n, a unit diagonal except where the
+// information is zero) for the scaled score gs, when A is positive
+// semidefinite to rounding and gs lies in its range. The Cholesky
+// factorization with complete pivoting stops at the numerical rank r, the
+// first pivot at most n eps times the largest diagonal; then
+//   - the Schur complement of the first r pivots must vanish to rounding
+//     (every entry within 16 times that bound): a negative curvature would
+//     show there, and the eigenvalue repair takes over;
+//   - the score must have no slope along the directions of zero curvature:
+//     its part in the other pivots beyond what the factor gives, r2, at
+//     most 1e-10 + 1e-8 |gs| in norm; a step against the smallest
+//     curvature the eigenvalue repair would allow there (1e-8 of the
+//     largest eigenvalue, itself at least the unit diagonal) gains at most
+//     |r2|^2 / 1e-8, which is then negligible (1e-12 when gs is small);
+//
+// and the step is Newton's on the first r pivots with the others held
+// (their curvature and slope being zero to rounding).
+func semidefiniteStep(A *mat.SymDense, gs []float64) ([]float64, bool) {
+	n := len(gs)
+	a := make([]float64, n*n)
+	maxd := 0.0
+	for i := 0; i < n; i++ {
+		for j := 0; j <= i; j++ {
+			a[i*n+j] = A.At(i, j)
+		}
+		maxd = math.Max(maxd, a[i*n+i])
+	}
+	if !(maxd > 0) || math.IsInf(maxd, 1) {
+		return nil, false
+	}
+	piv := make([]int, n)
+	tol := float64(n) * 0x1p-53 * maxd
+	t, r, _ := lapack64.Pstrf(blas64.Symmetric{N: n, Stride: n, Data: a, Uplo: blas.Lower}, piv, tol, make([]float64, 2*n))
+	if r == 0 {
+		return nil, false
+	}
+	L := t.Data // L[i*n+k]: row i, column k of the factor, k < r
+	for i := r; i < n; i++ {
+		for j := r; j <= i; j++ {
+			v := A.At(piv[i], piv[j])
+			for k := 0; k < r; k++ {
+				v -= L[i*n+k] * L[j*n+k]
+			}
+			if !(math.Abs(v) <= 16*tol) {
+				return nil, false
+			}
+		}
+	}
+	y := make([]float64, r)
+	for k := range y {
+		y[k] = gs[piv[k]]
+	}
+	l := blas64.Triangular{N: r, Stride: n, Data: L, Uplo: blas.Lower, Diag: blas.NonUnit}
+	blas64.Trsv(blas.NoTrans, l, blas64.Vector{N: r, Inc: 1, Data: y})
+	blas64.Trsv(blas.Trans, l, blas64.Vector{N: r, Inc: 1, Data: y})
+	rest := 0.0
+	for i := r; i < n; i++ {
+		v := gs[piv[i]]
+		for k := 0; k < r; k++ {
+			v -= A.At(piv[i], piv[k]) * y[k]
+		}
+		rest += v * v
+	}
+	if !(math.Sqrt(rest) <= 1e-10+1e-8*math.Sqrt(dot(gs, gs))) {
+		return nil, false
+	}
+	d := make([]float64, n)
+	for k := 0; k < r; k++ {
+		d[piv[k]] = y[k]
+	}
+	return d, true
 }
 
 func dot(a, b []float64) float64 {
@@ -406,7 +545,8 @@ func maximumLoop(theta0 []float64, maxIter int, ev evalFunc) newtonState {
 	for it := 0; ; it++ {
 		st.theta, st.ll, st.grad, st.hess, st.iters = theta, ll, g, H, it
 		st.minLogP, st.minKnown = a.minLogP, a.minKnown
-		d, dec, pd := newtonDirection(H, g)
+		d, dec, c := newtonStep(H, g)
+		pd := c == definite
 		st.decrement = dec
 		if !pd {
 			st.repaired++
@@ -415,11 +555,15 @@ func maximumLoop(theta0 []float64, maxIter int, ev evalFunc) newtonState {
 			st.converged, st.reason = true, "converged"
 			return st
 		}
+		scale := math.Max(1, math.Abs(ll))
+		if fresh && rangeExhausted(c, dec, scale) {
+			st.reason = rangeExhaustedReason
+			return st
+		}
 		if it >= maxIter {
 			st.reason = "iteration limit reached"
 			return st
 		}
-		scale := math.Max(1, math.Abs(ll))
 		if !fresh && (!pd || dec > 1e-2*prevDec) {
 			// The kept information no longer gives fast steps: evaluate it here.
 			if a = ev(theta, 2); a.bad {
