@@ -506,6 +506,7 @@ func writeLimits(d *doc, r *runner.Result) {
 		fewPerParameterSentence(r),
 		multiplicitySentence(r),
 		limitIf(len(r.Sensitivity) > 0, sensitivityLimit(r)),
+		limitIf(len(r.Sensitivity) == 0, removedSensitivityNote(r)),
 		earlierLooksSentence(r),
 	}
 	d.list(slices.DeleteFunc(items, func(s string) bool { return s == "" }))

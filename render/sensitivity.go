@@ -5,6 +5,7 @@ import (
 	"slices"
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/plan"
 	"ordplan/plan/lock"
 	"ordplan/render/numfmt"
@@ -23,6 +24,9 @@ func sensitivityLimit(r *runner.Result) string {
 	if late := sinceFrozenNames(r); len(late) > 0 {
 		head = fmt.Sprintf("The sensitivity analyses shown are those of the plan, and only those; not fixed in advance, since they are not as registered (added or changed after the plan was frozen: see Deviations from the registered plan): %s. ", strings.Join(late, ", "))
 	}
+	if rm := removedSensitivityNote(r); rm != "" {
+		head = strings.Replace(head, ", and only those", "", 1) + rm + " "
+	}
 	const moved = "the choice and the estimates did not move under the changes tried; it is not proof that the results are robust to changes not tried (other subsets of rows, other models or predictors, another handling of missing values, data missing not at random, confounding)."
 	eo := errorsOnlyNames(r)
 	if len(eo) == 0 {
@@ -36,6 +40,31 @@ func sensitivityLimit(r *runner.Result) string {
 		return head + one + " They are not proof that the results are robust to other changes (other subsets of rows, other models or predictors, another handling of missing values, data missing not at random, confounding)."
 	}
 	return head + one + " Agreement between the others and the primary analysis shows that " + moved
+}
+
+// removedSensitivityNote says which sensitivity analyses of the
+// registered plan the plan no longer has (lock.Status.RemovedSensitivity):
+// removed, or renamed, after the plan was frozen, so not run, with the
+// stated reasons; "" when none.
+func removedSensitivityNote(r *runner.Result) string {
+	if r.Registration == nil || len(r.Registration.RemovedSensitivity) == 0 {
+		return ""
+	}
+	var names, reasons []string
+	for _, ra := range r.Registration.RemovedSensitivity {
+		names = append(names, mdText(ra.Name))
+		if t := strings.TrimSuffix(ra.Reason, "."); t != "" && !slices.Contains(reasons, t) {
+			reasons = append(reasons, t)
+		}
+	}
+	why := "no stated reason"
+	if len(reasons) > 0 {
+		why = "stated reason: " + mdText(strings.Join(reasons, "; "))
+	}
+	if len(names) == 1 {
+		return fmt.Sprintf("The registered sensitivity analysis %s is not run: it was removed (or renamed) after the plan was frozen (%s; see Deviations from the registered plan).", names[0], why)
+	}
+	return fmt.Sprintf("The registered sensitivity analyses %s are not run: they were removed (or renamed) after the plan was frozen (%s; see Deviations from the registered plan).", words.AndList(names), why)
 }
 
 // errorsOnlyNames are the sensitivity analyses whose estimates are the
@@ -351,6 +380,9 @@ func analysisClusters(sr *runner.SensitivityResult, sor *runner.OutcomeResult) (
 // ("" when the plan has none).
 func sensitivitySummary(r *runner.Result) string {
 	if len(r.Sensitivity) == 0 {
+		if rm := removedSensitivityNote(r); rm != "" {
+			return "**Sensitivity analyses:** none run. " + rm
+		}
 		return ""
 	}
 	same, ran := 0, 0
@@ -378,12 +410,26 @@ func sensitivitySummary(r *runner.Result) string {
 	if ran < len(r.Sensitivity) {
 		s += fmt.Sprintf(" **%d could not be run.**", len(r.Sensitivity)-ran)
 	}
+	if rm := removedSensitivityNote(r); rm != "" {
+		s = strings.Replace(s, ", and only those", "", 1) + " " + rm
+	}
 	return s
 }
 
 // sensitivityMethods is the methods paragraph on the sensitivity
 // analyses ("" when the plan has none).
 func sensitivityMethods(r *runner.Result) string {
+	rm := removedSensitivityNote(r)
+	s := plannedSensitivityMethods(r)
+	if s == "" || rm == "" {
+		return s + rm
+	}
+	return s + " " + rm
+}
+
+// plannedSensitivityMethods is sensitivityMethods of the analyses the
+// plan has.
+func plannedSensitivityMethods(r *runner.Result) string {
 	if len(r.Sensitivity) == 0 {
 		return ""
 	}

@@ -21,6 +21,10 @@ type RegistrationRecord struct {
 	// AllowedUnexplained is true when changes without a stated reason were
 	// let through by --allow-unregistered-changes.
 	AllowedUnexplained bool `json:"allowed_unexplained"`
+	// RemovedSensitivity (JSON sensitivity_removed) are the registered
+	// sensitivity analyses the plan no longer has (removed or renamed
+	// after freezing), with the stated reasons: not run.
+	RemovedSensitivity []lock.RemovedAnalysis `json:"sensitivity_removed,omitempty"`
 	// UnusedDeviations are the plan's stated deviations that explain no
 	// change from the lock (all of them when there is none), as the
 	// report lists them.
@@ -206,7 +210,7 @@ func registrationRecord(st *lock.Status) *RegistrationRecord {
 	if st == nil {
 		return nil
 	}
-	r := &RegistrationRecord{State: st.State, LockFile: st.LockFile, Changes: st.Changes, AllowedUnexplained: st.Allowed, ReplacedLocks: st.Replaced}
+	r := &RegistrationRecord{State: st.State, LockFile: st.LockFile, Changes: st.Changes, AllowedUnexplained: st.Allowed, ReplacedLocks: st.Replaced, RemovedSensitivity: st.RemovedSensitivity}
 	if r.Changes == nil {
 		r.Changes = []lock.Explained{}
 	}

@@ -212,6 +212,40 @@ func TestDeviationsNameEarlierRegisteredRuns(t *testing.T) {
 	}
 }
 
+// A registered sensitivity analysis removed after freezing is said not to
+// be run, with its stated reason, in the summary, the sensitivity section,
+// the limits and the methods draft (which no longer say the analyses shown
+// are the only ones), and in decisions.json.
+func TestRemovedSensitivityReported(t *testing.T) {
+	dir, planPath, src := deviationStudy(t)
+	sens := "sensitivity:\n  - {name: sw, why: robust errors, change: {covariance: sandwich}}\n  - {name: ex, why: expected information, change: {covariance: expected}}\n"
+	os.WriteFile(planPath, []byte(src+sens), 0o644)
+	if _, errs, code := runCLI("freeze", planPath); code != 0 {
+		t.Fatalf("freeze: %d %s", code, errs)
+	}
+	os.WriteFile(planPath, []byte(src+"sensitivity:\n  - {name: ex, why: expected information, change: {covariance: expected}}\n"+
+		"deviations:\n  - key: sensitivity[0]\n    reason: the reviewers asked for expected information only\n"), 0o644)
+	o := filepath.Join(dir, "out")
+	if out, errs, code := runCLI("run", planPath, "--out", o, "--quiet"); code != 0 {
+		t.Fatalf("run: %d %s %s", code, out, errs)
+	}
+	md, _ := os.ReadFile(filepath.Join(o, "report.md"))
+	note := "The registered sensitivity analysis sw is not run: it was removed (or renamed) after the plan was frozen (stated reason: the reviewers asked for expected information only; see Deviations from the registered plan)."
+	if n := strings.Count(string(md), note); n != 4 || strings.Contains(string(md), "and only those") {
+		t.Errorf("the note %d times (want 4: summary, section, limits, methods), or 'and only those' left:\n%s", n, md)
+	}
+	b, _ := os.ReadFile(filepath.Join(o, "decisions.json"))
+	if !strings.Contains(string(b), `"sensitivity_removed": [
+      {
+        "name": "sw",
+        "key": "sensitivity[0]",
+        "reason": "the reviewers asked for expected information only"
+      }
+    ]`) {
+		t.Errorf("decisions.json lacks sensitivity_removed:\n%.3000s", b)
+	}
+}
+
 // A stated deviation that explains no change is listed in decisions.json
 // as the report lists it, with the changed key it may misspell.
 func TestUnusedDeviationsRecorded(t *testing.T) {

@@ -136,3 +136,26 @@ func TestRuleChanges(t *testing.T) {
 		t.Errorf("no status: %+v", got)
 	}
 }
+
+// A registered sensitivity analysis the plan no longer has under its name
+// (removed, or renamed) is named with the reason stated for its key in the
+// frozen plan; one that moved or changed is not.
+func TestRemovedSensitivity(t *testing.T) {
+	removed := strings.Replace(withSensitivity, "  - name: sandwich_errors\n    why: The observed information may understate the errors.\n    change:\n      covariance: sandwich\n", "", 1)
+	p, _ := setupFrom(t, withSensitivity, removed+"deviations:\n  - key: sensitivity[0]\n    reason: not needed\n")
+	st, err := Check(p, false)
+	if err != nil || len(st.RemovedSensitivity) != 1 || st.RemovedSensitivity[0] != (RemovedAnalysis{Name: "sandwich_errors", Key: "sensitivity[0]", Reason: "not needed"}) {
+		t.Fatalf("removed: %v %+v", err, st.RemovedSensitivity)
+	}
+	renamed := strings.Replace(withSensitivity, "name: without_low_b", "name: b_at_least_0", 1)
+	p, _ = setupFrom(t, withSensitivity, renamed)
+	st, _ = Check(p, true)
+	if len(st.RemovedSensitivity) != 1 || st.RemovedSensitivity[0].Name != "without_low_b" || st.RemovedSensitivity[0].Reason != "" {
+		t.Fatalf("renamed: %+v", st.RemovedSensitivity)
+	}
+	p, _ = setupFrom(t, withSensitivity, strings.Replace(withSensitivity, "at_least: 0", "at_least: 1", 1))
+	st, _ = Check(p, true)
+	if len(st.RemovedSensitivity) != 0 {
+		t.Fatalf("changed: %+v", st.RemovedSensitivity)
+	}
+}

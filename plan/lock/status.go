@@ -1,6 +1,7 @@
 package lock
 
 import (
+	"encoding/json"
 	"errors"
 	"fmt"
 	"io/fs"
@@ -35,6 +36,44 @@ type Status struct {
 	// Replaced are the earlier locks of the plan that freeze --replace
 	// kept beside the lock, oldest first (replacedLocks).
 	Replaced []Replaced
+	// RemovedSensitivity are the sensitivity analyses of the frozen plan
+	// that the plan no longer has under their name (removed, or renamed),
+	// in the frozen order (removedSensitivity).
+	RemovedSensitivity []RemovedAnalysis
+}
+
+// RemovedAnalysis is a registered sensitivity analysis the plan no
+// longer has: its name and the reason stated for its removal (a
+// deviation covering its key in the frozen plan; "" when none).
+type RemovedAnalysis struct {
+	Name   string `json:"name"`
+	Key    string `json:"key"` // its key in the frozen plan, sensitivity[i]
+	Reason string `json:"reason"`
+}
+
+// removedSensitivity finds the sensitivity analyses of the frozen
+// canonical form whose names the plan's analyses no longer have.
+func removedSensitivity(p *plan.Plan, frozen []byte) []RemovedAnalysis {
+	var f struct {
+		Sensitivity []struct {
+			Name string `json:"name"`
+		} `json:"sensitivity"`
+	}
+	if json.Unmarshal(frozen, &f) != nil {
+		return nil
+	}
+	var out []RemovedAnalysis
+	for i, s := range f.Sensitivity {
+		if slices.ContainsFunc(p.Sensitivity, func(n plan.Sensitivity) bool { return n.Name == s.Name }) {
+			continue
+		}
+		ra := RemovedAnalysis{Name: s.Name, Key: fmt.Sprintf("sensitivity[%d]", i)}
+		if k := stated(p.Deviations, ra.Key); k >= 0 {
+			ra.Reason = p.Deviations[k].Reason
+		}
+		out = append(out, ra)
+	}
+	return out
 }
 
 // Explained is a change with the reason the plan gives for it ("" if none).
@@ -104,6 +143,7 @@ func Compare(p *plan.Plan, f *File) (*Status, error) {
 	if err != nil {
 		return nil, err
 	}
+	st.RemovedSensitivity = removedSensitivity(p, frozen)
 	used := make([]bool, len(p.Deviations))
 	for _, c := range changes {
 		e := Explained{Change: c}
