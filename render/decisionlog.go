@@ -26,6 +26,31 @@ func unusableFits(or *runner.OutcomeResult) [][2]string {
 	return out
 }
 
+// removedRules names the rules of the registered plan that the plan no
+// longer has (a change removing a whole item of rules, by its index in
+// the frozen plan, that did not move), with the stated reasons: the
+// decision log lists the rules applied, and these were not.
+func removedRules(st *lock.Status) string {
+	if st == nil {
+		return ""
+	}
+	var items []string
+	for _, c := range st.Changes {
+		if !strings.HasPrefix(c.Path, "rules[") || strings.Contains(c.Path, ".") || c.To != lock.Absent || c.Moved != "" {
+			continue
+		}
+		why := "no stated reason"
+		if t := strings.TrimSuffix(c.ReasonText(""), "."); t != "" {
+			why = "stated reason: " + mdText(t)
+		}
+		items = append(items, fmt.Sprintf("%s (%s of the registered plan; %s)", codeCell(c.From), mdCode(c.Path), why))
+	}
+	if len(items) == 0 {
+		return ""
+	}
+	return fmt.Sprintf("**Not applied: %s of the registered plan, removed after the plan was frozen** (see Deviations from the registered plan): %s.", sing(len(items) == 1, "a rule", "rules"), strings.Join(items, "; "))
+}
+
 func writeDecisionLog(d *doc, st *lock.Status, or *runner.OutcomeResult) {
 	d.h(3, "Decision log")
 	for _, f := range unusableFits(or) {
@@ -53,6 +78,9 @@ func writeDecisionLog(d *doc, st *lock.Status, or *runner.OutcomeResult) {
 		}
 		d.captioned(fmt.Sprintf("Rule %d, %s: verdict on each model", i+1, ro.Rule.Kind)).table([]string{"Model", "Verdict", "Why"}, rows)
 	}
+	if rm := removedRules(st); rm != "" {
+		d.p("%s", rm)
+	}
 	switch {
 	case or.Chosen == nil:
 		d.p("**Result: no model chosen:** %s.", strings.TrimPrefix(or.Choice, "no model chosen: "))
@@ -73,9 +101,14 @@ func ruleSinceFrozen(changes []lock.Explained) string {
 	}
 	var what, reasons []string
 	for _, c := range changes {
+		kind := strings.Count(c.Path, ".") == 1 // rules[i].KIND: the rule's kind itself
 		switch {
 		case c.From == lock.Absent && !strings.Contains(c.Path, "."):
 			what = append(what, "added after the plan was frozen")
+		case kind && c.From == lock.Absent:
+			// the rule put in the registered one's place: said with it
+		case kind && c.To == lock.Absent:
+			what = append(what, fmt.Sprintf("put after the plan was frozen in the place of the registered rule %s", codeCell(`{"`+c.Path[strings.Index(c.Path, ".")+1:]+`": `+c.From+`}`)))
 		case c.Moved != "" && len(c.Keys) == 0:
 			what = append(what, fmt.Sprintf("moved from %s after the plan was frozen, unchanged", mdCode(c.Moved)))
 		case c.Moved != "":

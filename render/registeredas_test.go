@@ -100,3 +100,34 @@ func TestFromZero(t *testing.T) {
 		}
 	}
 }
+
+// The decision log says how a rule departs from the registered plan (a key
+// changed, moved, added, or put in a registered rule's place), and which
+// registered rules were removed and so not applied.
+func TestRuleDeparturesInTheDecisionLog(t *testing.T) {
+	ex := func(c lock.Change, reason string) lock.Explained { return lock.Explained{Change: c, Reason: reason} }
+	for _, tc := range []struct {
+		changes []lock.Explained
+		want    string
+	}{
+		{nil, ""},
+		{[]lock.Explained{ex(lock.Change{Path: "rules[3].reject_if_test_rejects.alpha", From: "0.05", To: "0.01"}, "stricter.")},
+			" **Not as registered:** changed after the plan was frozen (`rules[3].reject_if_test_rejects.alpha`: `0.05` → `0.01`); stated reason: stricter (see Deviations from the registered plan)."},
+		{[]lock.Explained{ex(lock.Change{Path: "rules[2]", From: "{}", To: "{}", Moved: "rules[1]", Keys: []lock.Change{{Path: "a", From: "1", To: "2"}}}, "")},
+			" **Not as registered:** moved from `rules[1]` and changed after the plan was frozen (`a`: `1` → `2`); no stated reason (see Deviations from the registered plan)."},
+		{[]lock.Explained{ex(lock.Change{Path: "rules[1].choose", From: `{"by": "aic"}`, To: lock.Absent}, "r"), ex(lock.Change{Path: "rules[1].prefer_simpler", From: lock.Absent, To: `{"by": "bic"}`}, "r")},
+			" **Not as registered:** put after the plan was frozen in the place of the registered rule `{\"choose\": {\"by\": \"aic\"}}`; stated reason: r (see Deviations from the registered plan)."},
+	} {
+		if got := ruleSinceFrozen(tc.changes); got != tc.want {
+			t.Errorf("%+v:\n got %q\nwant %q", tc.changes, got, tc.want)
+		}
+	}
+	st := &lock.Status{Changes: []lock.Explained{
+		ex(lock.Change{Path: "rules[2]", From: `{"reject_unconverged": true}`, To: lock.Absent}, "not needed."),
+		ex(lock.Change{Path: "rules[3]", From: `{"x": 1}`, To: `{"x": 1}`, Moved: "rules[0]"}, ""),
+		ex(lock.Change{Path: "rules[4]", From: lock.Absent, To: `{"y": 1}`}, ""),
+	}}
+	if got, want := removedRules(st), "**Not applied: a rule of the registered plan, removed after the plan was frozen** (see Deviations from the registered plan): `{\"reject_unconverged\": true}` (`rules[2]` of the registered plan; stated reason: not needed)."; got != want {
+		t.Errorf("removedRules:\n got %q\nwant %q", got, want)
+	}
+}
