@@ -5,9 +5,9 @@ import (
 	"math"
 	"strconv"
 
-	"ordplan/runner/data"
-
 	"gopkg.in/yaml.v3"
+
+	"ordplan/runner/data"
 )
 
 // scalar checks that n is a non-null scalar and gives its text.
@@ -165,6 +165,10 @@ func (d *decoder) numberWant(n *yaml.Node, path, want string) (float64, bool) {
 	}
 	if math.IsNaN(v) || math.IsInf(v, 0) {
 		d.errorf(n, path, "want a finite number, got %s", n.Value)
+		return 0, false
+	}
+	if data.Underflows(n.Value, v) {
+		d.errorf(n, path, "%s is too small for a number: it is not zero, but smaller in size than the smallest number held (about 4.9e-324), and would be read as 0; write 0 if zero is meant", n.Value)
 		return 0, false
 	}
 	return v, true

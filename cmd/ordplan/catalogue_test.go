@@ -1569,6 +1569,9 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`grouped.csv:2: column "a": value "1 234,5" is not a number; it separates groups of digits with spaces: write the number without them, such as 1234,5`}},
 		{id: "D60", name: "an amount with a currency sign", args: fitArgs(d("money.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`money.csv:2: column "a": value "$12.50" is not a number; it holds a currency sign: write the amount as a number without it, such as 12.50 (the currency in the column's name or the data dictionary's unit)`}},
+		{id: "D56", name: "a plan's number too small for a float", args: []string{"check", "--no-data"},
+			plan: edit("predictors: [a, b]", "predictors: [a, b]\nsubset:\n  - {column: a, at_least: 1e-400}"), code: 1,
+			want: []string{`D56.yaml:8:27: subset[0].at_least: 1e-400 is too small for a number: it is not zero, but smaller in size than the smallest number held (about 4.9e-324), and would be read as 0; write 0 if zero is meant`}},
 		{id: "D8", name: "outcome with one category", args: fitArgs(d("onecat.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`onecat.csv: column "y": only one category ("2") among the 3 kept rows; at least two are needed`},
 			check: func(t *testing.T, dir, out, errs string) {

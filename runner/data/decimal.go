@@ -255,7 +255,7 @@ func slowDecimal(text string, mark byte) (float64, bool) {
 		}
 	}
 	v, err := strconv.ParseFloat(text, 64)
-	if err != nil || math.IsInf(v, 0) || v == 0 && nonzeroDigit(text) {
+	if err != nil || math.IsInf(v, 0) || Underflows(text, v) {
 		return 0, false // beyond the range, or under it: parseNumber words it
 	}
 	return v, true

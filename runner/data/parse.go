@@ -133,10 +133,17 @@ func parseNumber(cell string) (float64, string) {
 	if math.IsInf(v, 0) {
 		return 0, "value " + quoteCell(cell) + " is infinite"
 	}
-	if v == 0 && nonzeroDigit(cell) {
+	if Underflows(cell, v) {
 		return 0, "value " + quoteCell(cell) + " is too small for a number: it is not zero, but smaller in size than the smallest number held (about 4.9e-324), and would be read as 0; write 0 if zero is meant, or give the column in other units (or as its logarithm)"
 	}
 	return v, ""
+}
+
+// Underflows reports whether a number's text, which strconv reads as v,
+// writes a nonzero number too small for a float64 (1e-400, read as 0):
+// the one test of it, for data cells and plan values alike.
+func Underflows(text string, v float64) bool {
+	return v == 0 && nonzeroDigit(text)
 }
 
 // nonzeroDigit reports whether the digits of a number's text before its
