@@ -62,15 +62,7 @@ func TestDuplicateAndForeignRepliesIgnored(t *testing.T) {
 	ctx, url, c, path, jobs := q.ctx, q.url, q.c, q.path, q.jobs
 	clog := &LogBuffer{}
 	co := q.coordinator(t, clog)
-	type out struct {
-		res  []*fit.Result
-		errs []error
-	}
-	done := make(chan out, 1)
-	go func() {
-		r, e := co.Execute(jobs)
-		done <- out{r, e}
-	}()
+	done := executeAsync(co, jobs)
 	waitFor(t, 10*time.Second, "the jobs in the stream", func() bool {
 		info, err := c.jobs.Info(ctx)
 		return err == nil && info.State.Msgs == 2
@@ -81,7 +73,7 @@ func TestDuplicateAndForeignRepliesIgnored(t *testing.T) {
 	storeReply(t, ctx, c, id+".x", &Reply{Batch: id, Index: 1, ID: jobs[1].ID, Err: "bad key"}, false)
 	// The worker computes both queued jobs; its reply to job 0 is a duplicate.
 	log := startWorker(t, url, "w1", 5*time.Second, 0)
-	var o out
+	var o executed
 	select {
 	case o = <-done:
 	case <-ctx.Done():

@@ -131,6 +131,23 @@ func gssJobs(t *testing.T, effects ...fit.Structure) (string, []runner.Job) {
 	return path, jobs
 }
 
+// executed is what Coordinator.Execute returned.
+type executed struct {
+	res  []*fit.Result
+	errs []error
+}
+
+// executeAsync runs co.Execute(jobs) in the background; its results come
+// on the channel returned.
+func executeAsync(co *Coordinator, jobs []runner.Job) <-chan executed {
+	got := make(chan executed, 1)
+	go func() {
+		res, errs := co.Execute(jobs)
+		got <- executed{res, errs}
+	}()
+	return got
+}
+
 func cancelable() (context.Context, context.CancelFunc) {
 	return context.WithCancel(context.Background())
 }

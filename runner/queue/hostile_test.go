@@ -23,21 +23,6 @@ import (
 	"ordplan/runner/queue/localserver"
 )
 
-// executeAsync runs a coordinator's Execute in the background.
-func executeAsync(co *Coordinator, jobs []runner.Job) <-chan []error {
-	done := make(chan []error, 1)
-	go func() {
-		res, errs := co.Execute(jobs)
-		for i := range errs {
-			if errs[i] == nil && res[i] == nil {
-				errs[i] = fmt.Errorf("no result")
-			}
-		}
-		done <- errs
-	}()
-	return done
-}
-
 func sameAsLocal(t *testing.T, path string, job runner.Job, got *fit.Result) {
 	t.Helper()
 	want, err := runner.ExecuteJob(path, job)
@@ -168,8 +153,8 @@ func TestPersistentGarbageFailsRun(t *testing.T) {
 		}
 	}()
 	select {
-	case errs := <-errCh:
-		if errs[0] == nil || !strings.Contains(errs[0].Error(), "replies discarded as unauthenticated or malformed") {
+	case o := <-errCh:
+		if errs := o.errs; errs[0] == nil || !strings.Contains(errs[0].Error(), "replies discarded as unauthenticated or malformed") {
 			t.Fatalf("got %v", errs[0])
 		}
 		if co2.Err() == nil {

@@ -19,15 +19,7 @@ func TestCoordinatorSaysWhenAWorkerFallsSilent(t *testing.T) {
 	q := newTestQueue(t, 60*time.Second, fit.ParallelEffects)
 	clog := &LogBuffer{}
 	co := q.coordinator(t, clog)
-	type outcome struct {
-		res  []*fit.Result
-		errs []error
-	}
-	got := make(chan outcome, 1)
-	go func() {
-		res, errs := co.Execute(q.jobs)
-		got <- outcome{res, errs}
-	}()
+	got := executeAsync(co, q.jobs)
 	// The victim holds the job (Delay) with an ack wait of 6 s: a
 	// progress note every 2 s, its silence said after 5 s.
 	vctx, stopVictim := context.WithCancel(context.Background())

@@ -51,15 +51,7 @@ func TestWorkerWithAnotherSecretLeavesJobs(t *testing.T) {
 	wrongLog := otherSecretWorker(t, q.url, "wrong")
 	clog := &LogBuffer{}
 	co := q.coordinator(t, clog)
-	type outcome struct {
-		res  []*fit.Result
-		errs []error
-	}
-	got := make(chan outcome, 1)
-	go func() {
-		res, errs := co.Execute(q.jobs)
-		got <- outcome{res, errs}
-	}()
+	got := executeAsync(co, q.jobs)
 	waitFor(t, 20*time.Second, "ten refusals", func() bool { return wrongLog.Count("job refused") >= 10 })
 	right := startWorker(t, q.url, "right", 5*time.Second, 0)
 	o := <-got
@@ -178,15 +170,7 @@ func TestWorkerOfAnotherBuildRefusesJobs(t *testing.T) {
 	waitFor(t, 10*time.Second, "old ready", func() bool { return strings.Contains(oldLog.String(), "ready") })
 	clog := &LogBuffer{}
 	co := q.coordinator(t, clog)
-	type outcome struct {
-		res  []*fit.Result
-		errs []error
-	}
-	got := make(chan outcome, 1)
-	go func() {
-		res, errs := co.Execute(q.jobs)
-		got <- outcome{res, errs}
-	}()
+	got := executeAsync(co, q.jobs)
 	waitFor(t, 20*time.Second, "five refusals", func() bool { return oldLog.Count("job refused") >= 5 })
 	right := startWorker(t, q.url, "right", 5*time.Second, 0)
 	o := <-got
