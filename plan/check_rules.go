@@ -35,7 +35,7 @@ func (d *decoder) checkRules(p *Plan) {
 		}
 		if last := finals[len(finals)-1]; last != len(p.Rules)-1 {
 			n := len(p.Rules) - 1 - last
-			d.errAt(itemPath("rules", last), "must be the last rule, but %d rule%s follow%s it", n, plural(n, "", "s"), plural(n, "s", ""))
+			d.errAt(itemPath("rules", last), "must be the last rule, but %d rule%s follow%s it", n, words.Form(n, "", "s"), words.Form(n, "s", ""))
 		}
 	}
 
@@ -204,13 +204,6 @@ func (d *decoder) checkFinalRule(p *Plan, r Rule, at string) {
 	if len(probs) > 0 {
 		d.errAt(key, "the fallback %s is not a model of the plan: %s", r.Otherwise, strings.Join(probs, "; "))
 	}
-}
-
-func plural(n int, one, many string) string {
-	if n == 1 {
-		return one
-	}
-	return many
 }
 
 // checkGridLevels refuses a level the grid lists for a categorical column

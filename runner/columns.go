@@ -12,6 +12,7 @@ import (
 	"strconv"
 	"strings"
 
+	"ordplan/internal/words"
 	"ordplan/render/numfmt"
 	"ordplan/runner/data"
 )
@@ -410,7 +411,7 @@ func columnLines(was, now OutcomeColumns) (lines, sources []string) {
 	// said, and no column may be said to be unchanged.
 	var notCompared string
 	if len(unpaired) > 0 && !sameRows(was, now) {
-		notCompared = fmt.Sprintf("%s%s %s, which this run reads (that run did not read %s in this role, or its record was edited since), so whether %s changed cannot be said", who, notComparedLead, strings.Join(unpaired, ", "), pronoun(len(unpaired), "it", "them"), pronoun(len(unpaired), "it", "they"))
+		notCompared = fmt.Sprintf("%s%s %s, which this run reads (that run did not read %s in this role, or its record was edited since), so whether %s changed cannot be said", who, notComparedLead, strings.Join(unpaired, ", "), words.Form(len(unpaired), "it", "them"), words.Form(len(unpaired), "it", "they"))
 	}
 	if changed == 0 && moved == 0 && notCompared != "" {
 		return append(renamed, notCompared+"; no column both runs read changed in the rows used"), sources
@@ -480,14 +481,6 @@ const rowsReordered = " rows used are the same, in another order"
 // not hold.
 const notComparedLead = "the earlier run's record has no fingerprint of"
 
-// pronoun is one for a single thing, many for several.
-func pronoun(n int, one, many string) string {
-	if n == 1 {
-		return one
-	}
-	return many
-}
-
 // sameSummaries names the summaries of a column that did not change.
 func sameSummaries(c ColumnPrint) string {
 	switch {
@@ -552,10 +545,10 @@ func summaryChanges(was, now ColumnPrint) []string {
 		}
 	}
 	if len(gone) > 0 {
-		d = append(d, "no longer "+pronoun(len(gone), "a level", "levels")+": "+strings.Join(gone, ", "))
+		d = append(d, "no longer "+words.Form(len(gone), "a level", "levels")+": "+strings.Join(gone, ", "))
 	}
 	if len(added) > 0 {
-		d = append(d, pronoun(len(added), "new level", "new levels")+": "+strings.Join(added, ", "))
+		d = append(d, words.Form(len(added), "new level", "new levels")+": "+strings.Join(added, ", "))
 	}
 	return d
 }

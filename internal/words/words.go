@@ -84,10 +84,16 @@ func AndList(words []string) string { return list(words, " and ") }
 // Count writes a count with its noun in the number it takes: "1 key",
 // "2 keys", "0 keys".
 func Count(n int, one, many string) string {
+	return strconv.Itoa(n) + " " + Form(n, one, many)
+}
+
+// Form is the word in the number a count takes, without the count: one
+// for 1, many otherwise ("is" or "are", "it" or "them").
+func Form(n int, one, many string) string {
 	if n == 1 {
-		return "1 " + one
+		return one
 	}
-	return strconv.Itoa(n) + " " + many
+	return many
 }
 
 // Some renders the first n of xs joined by commas and says how many more

@@ -2,6 +2,7 @@ package words
 
 import (
 	"slices"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -68,6 +69,9 @@ func TestCount(t *testing.T) {
 	}{{0, "0 keys"}, {1, "1 key"}, {2, "2 keys"}, {12, "12 keys"}} {
 		if got := Count(c.n, "key", "keys"); got != c.want {
 			t.Errorf("Count(%d) = %q, want %q", c.n, got, c.want)
+		}
+		if got, want := Form(c.n, "key", "keys"), c.want[len(strconv.Itoa(c.n))+1:]; got != want {
+			t.Errorf("Form(%d) = %q, want %q", c.n, got, want)
 		}
 	}
 }

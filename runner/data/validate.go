@@ -112,15 +112,8 @@ func (e *ValidationError) renamedHints(cols []ruled) {
 			found = append(found, fmt.Sprintf("%s (%s)", quoteCell(v), words.Count(t.undeclared[v], "row", "rows")))
 		}
 		e.Renamed = append(e.Renamed, fmt.Sprintf("%s: column %q: the declared %s %s %s in no row, while %s %s not declared: if the data renamed a category, write its new name in %s (under a lock, a change from the registered plan to state in its deviations)",
-			e.File, c.Column, pluralWord(len(absent), "category", "categories"), words.AndList(absent), pluralWord(len(absent), "is", "are"), words.AndList(found), pluralWord(len(found), "is", "are"), c.Key))
+			e.File, c.Column, words.Form(len(absent), "category", "categories"), words.AndList(absent), words.Form(len(absent), "is", "are"), words.AndList(found), words.Form(len(found), "is", "are"), c.Key))
 	}
-}
-
-func pluralWord(n int, one, many string) string {
-	if n == 1 {
-		return one
-	}
-	return many
 }
 
 // MaxProblems is the number of problems a ValidationError lists.
