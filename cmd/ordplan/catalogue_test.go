@@ -304,6 +304,7 @@ func catalogueData(t *testing.T, dir string) {
 		"titled.csv":    "Survey export 2024\ny,a,b\n1,0.5,1\n2,0.2,1\n",
 		"grouped.csv":   "y;a;b\n1;1 234,5;1\n2;0,5;0\n",
 		"money.csv":     "y,a,b\n1,$12.50,1\n2,$3.00,0\n",
+		"wrapped.csv":   "y,\"Age\n(years)\",b\n1,20,1\n2,30,0\n",
 		"newtotals.csv": "a,b,note\n0.5,1,\n0.25,0,\n0.75,1,Total\n",
 		"csvtotals.csv": "y,a,b,note\n1,0.5,1,\n2,0.25,0,\n1,0.75,1,\n2,0.125,1,\n,1.625,3,Total\n",
 		"onecat.csv":    "y,a,b\n2,0.5,1\n2,0.7,0\n2,0.1,1\n",
@@ -1572,6 +1573,8 @@ func catalogue(dir string) (items []badInput) {
 		{id: "D56", name: "a plan's number too small for a float", args: []string{"check", "--no-data"},
 			plan: edit("predictors: [a, b]", "predictors: [a, b]\nsubset:\n  - {column: a, at_least: 1e-400}"), code: 1,
 			want: []string{`D56.yaml:8:27: subset[0].at_least: 1e-400 is too small for a number: it is not zero, but smaller in size than the smallest number held (about 4.9e-324), and would be read as 0; write 0 if zero is meant`}},
+		{id: "D61", name: "a column whose name holds a line break, named on one line", args: fitArgs(d("wrapped.csv"), "--predictors", "Age (years),b"), code: 1,
+			want: []string{`wrapped.csv: column "Age (years)": predictor column not found in the header; the file names it "Age\n(years)", with a line break (or another control character) in the name, which a plan cannot write: rename the column in the file, on one line`}},
 		{id: "D8", name: "outcome with one category", args: fitArgs(d("onecat.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`onecat.csv: column "y": only one category ("2") among the 3 kept rows; at least two are needed`},
 			check: func(t *testing.T, dir, out, errs string) {

@@ -44,6 +44,8 @@ func KindOf(p data.Profile, haveData bool) Kind {
 		miss = fmt.Sprintf("; %d of %d missing", p.Missing, p.Rows)
 	}
 	switch {
+	case data.BreaksInName(p.Name):
+		return Kind{Word: "badname", Describe: "its name holds a line break (or another control character), which a plan cannot write: rename the column in the file, on one line, to use it"}
 	case p.Nested != "":
 		return Kind{Word: "nested", Describe: p.Nested + ", a nested Parquet column: not readable by ordplan (write it as a flat column to use it)"}
 	case p.Formatted != "":
@@ -97,6 +99,16 @@ func KindOf(p data.Profile, haveData bool) Kind {
 	return Kind{Word: "text", Describe: fmt.Sprintf("text, more than %d values: an identifier or free text?%s", data.MaxValues, miss)}
 }
 
+// shownName is a column's name as a comment of the plan shows it: quoted
+// with its escapes when it holds a line break or another control
+// character (data.BreaksInName), which would end the comment.
+func shownName(name string) string {
+	if data.BreaksInName(name) {
+		return strconv.Quote(name)
+	}
+	return name
+}
+
 func num(x float64) string { return strconv.FormatFloat(x, 'g', -1, 64) }
 
 // Write gives the plan text.
@@ -118,7 +130,7 @@ func Write(in Input) ([]byte, error) {
 		switch {
 		case c.Numeric && weightLike(c):
 			weighty = append(weighty, c.Name)
-		case kinds[i].Word == "nested" || kinds[i].Word == "merged" || kinds[i].Word == "formatted":
+		case kinds[i].Word == "nested" || kinds[i].Word == "merged" || kinds[i].Word == "formatted" || kinds[i].Word == "badname":
 			// Described as not readable above; never a predictor.
 		case kinds[i].Word == "cluster?":
 			clustery = append(clustery, c.Name)
@@ -165,7 +177,7 @@ func Write(in Input) ([]byte, error) {
 	w("# The columns of %s and what they seem to be:", from)
 	width := 0
 	for _, c := range in.Columns {
-		width = max(width, len(c.Name))
+		width = max(width, len(shownName(c.Name)))
 	}
 	for i, c := range in.Columns {
 		role := ""
@@ -185,7 +197,7 @@ func Write(in Input) ([]byte, error) {
 			// Read as data all the same: often an old version of a column.
 			role += "  (hidden in the sheet, read as data: check that the plan should use it)"
 		}
-		w("#   %-*s  %s%s", width, c.Name, kinds[i].Describe, role)
+		w("#   %-*s  %s%s", width, shownName(c.Name), kinds[i].Describe, role)
 	}
 	w("")
 	w("data:")

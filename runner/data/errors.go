@@ -148,10 +148,23 @@ func notInHeader(role, col string, names []string) string {
 	if role != "" {
 		msg = role + " " + msg
 	}
+	for _, h := range names {
+		if BreaksInName(h) && strings.Join(strings.Fields(h), " ") == strings.Join(strings.Fields(col), " ") {
+			return msg + "; the file names it " + quoteCell(h) + ", with a line break (or another control character) in the name, which a plan cannot write: rename the column in the file, on one line"
+		}
+	}
 	if h, ok := NearColumn(col, names); ok {
 		return msg + "; did you mean " + quoteCell(h) + "?"
 	}
 	return msg + "; available columns: " + quoteList(names)
+}
+
+// BreaksInName reports whether a column name holds a line break, a tab
+// or another control character (a spreadsheet's header cell whose text
+// wraps onto two lines): a plan, whose names are printable text on one
+// line, cannot name such a column.
+func BreaksInName(name string) bool {
+	return strings.ContainsFunc(name, unicode.IsControl)
 }
 
 // looseEqual reports whether a and b are equal ignoring letter case and
