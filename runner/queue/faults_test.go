@@ -6,6 +6,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 	"time"
@@ -328,10 +329,16 @@ func TestWorkerFaultStopsRunOrIsRetried(t *testing.T) {
 			t.Logf("bad:\n%s\ngood:\n%s", blog, glog)
 		}
 	}()
-	co2 := q2.coordinator(t, nil)
+	clog := &LogBuffer{}
+	co2 := q2.coordinator(t, clog)
 	res2, errs2 := co2.Execute(q2.jobs)
 	if co2.Err() != nil {
 		t.Fatalf("with a good worker: %v", co2.Err())
+	}
+	// The coordinator says the bad worker's fault once, at its first.
+	said := regexp.MustCompile(`queue: worker w-bad2 failed job cumulative/\S+ through a fault of its own, not of the fit \(delivery 1; left for another try, and that worker waits before its next job\): job cumulative/\S+ has 6 predictors; this worker allows at most 1 `)
+	if n := clog.Count("queue: worker w-bad2 failed"); n != 1 || !said.MatchString(clog.String()) {
+		t.Errorf("the coordinator said the bad worker's fault %d times, want once:\n%s", n, clog)
 	}
 	for i, j := range q2.jobs {
 		local, err := runner.ExecuteJob(q2.path, j)

@@ -49,7 +49,8 @@ const (
 	noteProgress = "progress"
 	noteEnd      = "end"
 	noteRefused  = "refused"
-	sealNote     = 'N' // a JSON note, named by its subject
+	noteFault    = "fault" // a job left for another try after a fault of the worker
+	sealNote     = 'N'     // a JSON note, named by its subject
 )
 
 type note struct {
@@ -59,7 +60,9 @@ type note struct {
 	EveryMS  int64  `json:"every_ms,omitempty"`
 	// Build is, in a refusal for another build, the refusing worker's.
 	Build string `json:"build,omitempty"`
-	AckMS int64  `json:"ack_wait_ms,omitempty"`
+	// Reason is, in a fault note, the fault.
+	Reason string `json:"reason,omitempty"`
+	AckMS  int64  `json:"ack_wait_ms,omitempty"`
 }
 
 // noteSubjectOf is the notes subject of the job published on subject
@@ -98,7 +101,7 @@ func (c *Client) readNote(subject string, b []byte) (n note, sealed, ok bool) {
 		if kind != sealNote || json.Unmarshal(payload, &n) != nil {
 			return n, false, false
 		}
-		return n, true, n.Kind == noteProgress || n.Kind == noteEnd || n.Kind == noteRefused
+		return n, true, n.Kind == noteProgress || n.Kind == noteEnd || n.Kind == noteRefused || n.Kind == noteFault
 	}
 	if json.Unmarshal(b, &n) != nil || n.Kind != noteRefused || n.Worker == "" {
 		return n, false, false
@@ -156,9 +159,10 @@ type batchNotes struct {
 	mu      sync.Mutex
 	done    map[int]bool // tasks with their reply
 	holds   map[int]*holding
-	refused map[string]int // refusals by worker
-	order   []string       // workers in the order they first refused
-	since   time.Time      // first refusal since word from a worker with the secret
+	refused map[string]int  // refusals by worker
+	faulted map[string]bool // workers whose fault was said
+	order   []string        // workers in the order they first refused
+	since   time.Time       // first refusal since word from a worker with the secret
 	wait    time.Duration
 	// connected tells whether the coordinator's own connection is up;
 	// offline is set while it was seen down: workers are not heard then,
@@ -174,7 +178,7 @@ type batchNotes struct {
 // dropped, never waited for.
 func (c *Client) follow(ctx context.Context, id string, tasks []*Task, cancel context.CancelCauseFunc) (*batchNotes, error) {
 	bn := &batchNotes{c: c, id: id, tasks: tasks, ch: make(chan heard, 256), begin: make(chan struct{}), quit: make(chan struct{}), ended: make(chan struct{}),
-		done: map[int]bool{}, holds: map[int]*holding{}, refused: map[string]int{}, wait: c.RefusedWait, connected: c.nc.IsConnected}
+		done: map[int]bool{}, holds: map[int]*holding{}, refused: map[string]int{}, faulted: map[string]bool{}, wait: c.RefusedWait, connected: c.nc.IsConnected}
 	if bn.wait <= 0 {
 		bn.wait = DefaultRefusedWait
 	}
@@ -278,6 +282,16 @@ func (bn *batchNotes) take(h heard) {
 				n.Worker, t.label(), n.Worker)
 		}
 		bn.refused[n.Worker]++
+	case n.Kind == noteFault:
+		if h.sealed && !bn.faulted[n.Worker] {
+			bn.faulted[n.Worker] = true
+			reason := []rune(n.Reason)
+			if len(reason) > 300 {
+				reason = append(reason[:300], '.', '.', '.')
+			}
+			bn.c.logf("queue: worker %s failed job %s through a fault of its own, not of the fit (delivery %d; left for another try, and that worker waits before its next job): %s",
+				n.Worker, t.label(), n.Delivery, string(reason))
+		}
 	case n.Kind == noteEnd:
 		if hd := bn.holds[i]; hd != nil && hd.worker == n.Worker {
 			delete(bn.holds, i)

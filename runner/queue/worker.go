@@ -431,6 +431,7 @@ func (w *Worker) handle(ctx context.Context, msg jetstream.Msg) {
 		// stored as the reply only at the last delivery before the
 		// poison rule.
 		stop()
+		w.sendNote(msg.Subject(), note{Kind: noteFault, Delivery: delivered, Reason: r.Err})
 		pause := w.faultBackoff()
 		w.logf("%s: %s (delivery %d; left for another try; this worker takes its next job in %s, so that another can take this one)", t.jobName(), r.Err, delivered, pause)
 		msg.NakWithDelay(faultRetryDelay)
