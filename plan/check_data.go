@@ -286,6 +286,9 @@ func openReason(err error) string {
 // columnHint suggests a column that differs only in letter case or
 // separators (data.NearColumn), or else lists the columns of the file.
 func columnHint(col string, header []string) string {
+	if hint := data.SpacedColumn(col, header); hint != "" {
+		return "; " + hint
+	}
 	if h, ok := data.NearColumn(col, header); ok {
 		return `; did you mean "` + clip(h) + `"?`
 	}

@@ -305,6 +305,7 @@ func catalogueData(t *testing.T, dir string) {
 		"grouped.csv":   "y;a;b\n1;1 234,5;1\n2;0,5;0\n",
 		"money.csv":     "y,a,b\n1,$12.50,1\n2,$3.00,0\n",
 		"wrapped.csv":   "y,\"Age\n(years)\",b\n1,20,1\n2,30,0\n",
+		"nbspname.csv":  "y,Weight\u00a0kg,b\n1,20,1\n2,30,0\n",
 		"newtotals.csv": "a,b,note\n0.5,1,\n0.25,0,\n0.75,1,Total\n",
 		"csvtotals.csv": "y,a,b,note\n1,0.5,1,\n2,0.25,0,\n1,0.75,1,\n2,0.125,1,\n,1.625,3,Total\n",
 		"onecat.csv":    "y,a,b\n2,0.5,1\n2,0.7,0\n2,0.1,1\n",
@@ -1575,6 +1576,9 @@ func catalogue(dir string) (items []badInput) {
 			want: []string{`D56.yaml:8:27: subset[0].at_least: 1e-400 is too small for a number: it is not zero, but smaller in size than the smallest number held (about 4.9e-324), and would be read as 0; write 0 if zero is meant`}},
 		{id: "D61", name: "a column whose name holds a line break, named on one line", args: fitArgs(d("wrapped.csv"), "--predictors", "Age (years),b"), code: 1,
 			want: []string{`wrapped.csv: column "Age (years)": predictor column not found in the header; the file names it "Age\n(years)", with a line break (or another control character) in the name, which a plan cannot write: rename the column in the file, on one line`}},
+		{id: "D61", name: "a column whose name holds a no-break space, named with a space", args: []string{"check"},
+			plan: edit("file: d.csv", "file: nbspname.csv", "predictors: [a, b]", "predictors: [Weight kg, b]"), code: 1,
+			want: []string{`predictors[0]: column "Weight kg" is not in the data file nbspname.csv; the file names it "Weight\u00a0kg", with other spaces (a no-break space, or more than one) between its words: write the name so (in a plan, a double-quoted name takes \u00a0 for a no-break space), or rename the column in the file`}},
 		{id: "D8", name: "outcome with one category", args: fitArgs(d("onecat.csv"), "--predictors", "a,b"), code: 1,
 			want: []string{`onecat.csv: column "y": only one category ("2") among the 3 kept rows; at least two are needed`},
 			check: func(t *testing.T, dir, out, errs string) {

@@ -148,15 +148,31 @@ func notInHeader(role, col string, names []string) string {
 	if role != "" {
 		msg = role + " " + msg
 	}
-	for _, h := range names {
-		if BreaksInName(h) && strings.Join(strings.Fields(h), " ") == strings.Join(strings.Fields(col), " ") {
-			return msg + "; the file names it " + quoteCell(h) + ", with a line break (or another control character) in the name, which a plan cannot write: rename the column in the file, on one line"
-		}
+	if hint := SpacedColumn(col, names); hint != "" {
+		return msg + "; " + hint
 	}
 	if h, ok := NearColumn(col, names); ok {
 		return msg + "; did you mean " + quoteCell(h) + "?"
 	}
 	return msg + "; available columns: " + quoteList(names)
+}
+
+// SpacedColumn says, of a column col a header (names) lacks, the name in
+// it that is col but for its spaces: a line break or another control
+// character between its words (which a plan cannot write: BreaksInName),
+// or a no-break space or two spaces where col has one; "" when there is
+// none. The message of a missing column and the plan's check say it.
+func SpacedColumn(col string, names []string) string {
+	for _, h := range names {
+		if strings.Join(strings.Fields(h), " ") != strings.Join(strings.Fields(col), " ") {
+			continue
+		}
+		if BreaksInName(h) {
+			return "the file names it " + quoteCell(h) + ", with a line break (or another control character) in the name, which a plan cannot write: rename the column in the file, on one line"
+		}
+		return "the file names it " + quoteCell(h) + ", with other spaces (a no-break space, or more than one) between its words: write the name so (in a plan, a double-quoted name takes \\u00a0 for a no-break space), or rename the column in the file"
+	}
+	return ""
 }
 
 // BreaksInName reports whether a column name holds a line break, a tab

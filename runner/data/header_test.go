@@ -201,3 +201,19 @@ func TestSepAndTitleLines(t *testing.T) {
 		t.Errorf("a file of one column: %v", err)
 	}
 }
+
+// A column named but for its spaces (a line break, a no-break space, two
+// spaces) is said to be so; another name is not.
+func TestSpacedColumn(t *testing.T) {
+	names := []string{"y", "Age\n(years)", "Weight\u00a0kg", "a  b"}
+	for col, want := range map[string]string{
+		"Age (years)": `the file names it "Age\n(years)", with a line break (or another control character) in the name, which a plan cannot write: rename the column in the file, on one line`,
+		"Weight kg":   `the file names it "Weight\u00a0kg", with other spaces (a no-break space, or more than one) between its words: write the name so (in a plan, a double-quoted name takes \u00a0 for a no-break space), or rename the column in the file`,
+		"a b":         `the file names it "a  b", with other spaces (a no-break space, or more than one) between its words: write the name so (in a plan, a double-quoted name takes \u00a0 for a no-break space), or rename the column in the file`,
+		"Age":         "",
+	} {
+		if got := SpacedColumn(col, names); got != want {
+			t.Errorf("%q: got %q, want %q", col, got, want)
+		}
+	}
+}
