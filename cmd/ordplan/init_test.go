@@ -153,7 +153,8 @@ func TestInitFollowsDialect(t *testing.T) {
 // count of visits), although the file has fewer than two rows per value;
 // integer codes still win over text naming places, and a name that says
 // rating wins among integer codes; a numeric column named as weights is
-// never the outcome nor a predictor, and the plan offers it as data.weights.
+// never the outcome nor a predictor, and the plan offers it as data.weights,
+// unless its name says it measures a weight (weight_kg: a predictor).
 func TestInitGuessesScaleOutcome(t *testing.T) {
 	dir := t.TempDir()
 	for i, c := range []struct {
@@ -165,6 +166,8 @@ func TestInitGuessesScaleOutcome(t *testing.T) {
 		// Integer codes under a weight name are weights, not the outcome;
 		// slight and complete are scale words.
 		{"fw,age,relief\n1,30,none\n2,41,slight\n3,52,moderate\n1,33,complete\n2,45,slight\n3,61,none\n", "relief"},
+		// A weight measured (a unit, body, birth) is a predictor.
+		{"weight_kg,age,relief\n61,30,none\n72,41,slight\n83,52,moderate\n64,33,complete\n75,45,slight\n86,61,none\n", "relief"},
 	} {
 		d := filepath.Join(dir, "d"+strconv.Itoa(i)+".csv")
 		os.WriteFile(d, []byte(c.csv), 0o644)
@@ -176,6 +179,10 @@ func TestInitGuessesScaleOutcome(t *testing.T) {
 		if got := pl.Outcomes[0].Column; got != c.want {
 			text, _ := os.ReadFile(p)
 			t.Errorf("case %d: outcome %q, want %q\n%s", i, got, c.want, text)
+		}
+		if strings.HasPrefix(c.csv, "weight_kg,") && !slices.Contains(pl.PredictorsOf(pl.Outcomes[0]), "weight_kg") {
+			text, _ := os.ReadFile(p)
+			t.Errorf("a body weight taken for case weights:\n%s", text)
 		}
 		if strings.HasPrefix(c.csv, "fw,") {
 			text, _ := os.ReadFile(p)

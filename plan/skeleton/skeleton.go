@@ -652,10 +652,17 @@ func outcomeByName(cols []data.Profile) int {
 // letters: the whole word).
 var weightNames = []string{"weight", "wgt", "wt", "fw", "sw", "pw"}
 
+// bodyWeightWords, beside a weight name, say that the column measures a
+// weight (weight_kg, body weight, birth_weight_g), a predictor, not case
+// weights.
+var bodyWeightWords = []string{"kg", "kgs", "kilo", "kilos", "kilogram", "kilograms", "g", "gram", "grams", "lb", "lbs", "pound", "pounds", "oz", "body", "birth", "baby", "infant"}
+
 // weightLike reports whether a numeric column looks like case weights: a
-// weight name and no negative value.
+// weight name without a word of a measured weight (bodyWeightWords) and
+// no negative value.
 func weightLike(c data.Profile) bool {
-	return c.Numeric && c.Min >= 0 && hasAny(strings.ToLower(c.Name), weightNames)
+	name := strings.ToLower(c.Name)
+	return c.Numeric && c.Min >= 0 && hasAny(name, weightNames) && !slices.ContainsFunc(strings.FieldsFunc(name, func(r rune) bool { return !unicode.IsLetter(r) }), func(w string) bool { return slices.Contains(bodyWeightWords, w) })
 }
 
 // idWords are the words that, ending a column's name, say the column holds
