@@ -205,13 +205,19 @@ func ingestChild(path, mode string, delim string, decimalComma bool, K int) {
 func cpuSeconds() float64 { return fit.CPUTime().Seconds() }
 
 // vmHWM is the process's peak resident set size in bytes (0 when unknown).
-func vmHWM() uint64 {
+func vmHWM() uint64 { return procStatus("VmHWM:") }
+
+// vmRSS is this process's resident set now, bytes (Linux; 0 elsewhere).
+func vmRSS() uint64 { return procStatus("VmRSS:") }
+
+// procStatus reads one kB field of /proc/self/status, in bytes.
+func procStatus(field string) uint64 {
 	raw, err := os.ReadFile("/proc/self/status")
 	if err != nil {
 		return 0
 	}
 	for _, ln := range strings.Split(string(raw), "\n") {
-		if rest, ok := strings.CutPrefix(ln, "VmHWM:"); ok {
+		if rest, ok := strings.CutPrefix(ln, field); ok {
 			kb, _ := strconv.ParseUint(strings.TrimSpace(strings.TrimSuffix(strings.TrimSpace(rest), "kB")), 10, 64)
 			return kb << 10
 		}

@@ -340,6 +340,19 @@ func gridReport(w io.Writer, n int) {
 type memoryResult struct {
 	RSS  uint64 `json:"rss"`
 	Heap uint64 `json:"heap"`
+	// The grid's child says more (-memory-child grid): the resident set
+	// before the data was made (the runtime's own) and after, the bytes
+	// allocated and the collections during the grid, the largest heap
+	// the runtime held from the system, and the grid's wall and CPU
+	// seconds.
+	StartRSS  uint64  `json:"start_rss,omitempty"`
+	DataRSS   uint64  `json:"data_rss,omitempty"`
+	Allocated uint64  `json:"allocated,omitempty"`
+	GCs       uint32  `json:"gcs,omitempty"`
+	HeapSys   uint64  `json:"heap_sys,omitempty"`
+	Sys       uint64  `json:"sys,omitempty"`
+	Wall      float64 `json:"wall,omitempty"`
+	CPU       float64 `json:"cpu,omitempty"`
 }
 
 // memoryChild runs one fit of model (binary or cumulative/nonparallel),
@@ -376,9 +389,22 @@ func runMemoryChild(model string, n int) {
 	var ferr error
 	var heap uint64
 	if model == "grid" {
+		r := memoryResult{StartRSS: vmRSS()}
 		d := generate(n, K, 5, 42)
-		heap = peak(func() { fitAtOnce(d, gridCells(K)) })
-		json.NewEncoder(os.Stdout).Encode(memoryResult{RSS: vmHWM(), Heap: heap})
+		runtime.GC()
+		r.DataRSS = vmRSS()
+		var before, after runtime.MemStats
+		runtime.ReadMemStats(&before)
+		cpu0 := cpuSeconds()
+		r.Heap = peak(func() { r.Wall = fitAtOnce(d, gridCells(K)) })
+		r.CPU = cpuSeconds() - cpu0
+		runtime.ReadMemStats(&after)
+		r.RSS = vmHWM()
+		r.Allocated = after.TotalAlloc - before.TotalAlloc
+		r.GCs = after.NumGC - before.NumGC
+		r.HeapSys = after.HeapSys
+		r.Sys = after.Sys
+		json.NewEncoder(os.Stdout).Encode(r)
 		runtime.KeepAlive(d)
 		return
 	}

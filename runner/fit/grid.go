@@ -205,6 +205,9 @@ func FitGrid(d *Data, models []Model, opt Options, workers int, done func(i int,
 		return
 	}
 	sh := &shared{fitted: map[string]gridFit{}, columns: true}
+	if 8*d.N()*d.width() >= limitAbove {
+		defer holdGridLimit(gridBudget(d, workers))()
+	}
 	cd, c := sh.centred(d, opt.Workers)
 	deps := gridDeps(d, models, opt)
 	order := gridOrder(d, models, deps)

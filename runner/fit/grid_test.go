@@ -59,7 +59,11 @@ func TestFitGridSameAsFit(t *testing.T) {
 		if !strings.HasPrefix(want[len(want)-1], "error:") {
 			t.Fatalf("the last model should be refused: %s", want[len(want)-1])
 		}
-		for _, workers := range []int{1, 3} {
+		for _, run := range []struct{ workers, limitAbove int }{{1, limitAbove}, {3, limitAbove}, {3, 0}} {
+			workers := run.workers
+			// limitAbove 0: the grid holds the soft memory limit
+			// (holdGridLimit) as a large one does.
+			limitAbove, run.limitAbove = run.limitAbove, limitAbove
 			got := make([]string, len(models))
 			var calls atomic.Int32 // done is called from the fits' goroutines
 			FitGrid(d, models, Options{Workers: 2}, workers, func(i int, r *Result, err error) {
@@ -72,6 +76,7 @@ func TestFitGridSameAsFit(t *testing.T) {
 					r.Estimates[0] = 99
 				}
 			})
+			limitAbove = run.limitAbove
 			if int(calls.Load()) != len(models) {
 				t.Errorf("n = %d, %d at once: %d calls for %d models", n, workers, calls.Load(), len(models))
 			}
