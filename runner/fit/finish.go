@@ -117,7 +117,7 @@ func finish(src *source, m Model, ly *layout, st newtonState, opt Options) (*Res
 	}
 	switch {
 	case v == verdictSeparated || v == verdictDiverging:
-		r.Separation = src.describeSeparation(m, ly, st.theta, dir, rec)
+		r.Separation = src.describeSeparation(m, ly, st.theta, info, dir, rec)
 		return r.fail(StatusNoFiniteMaximum, separationMessage(r, st)), nil
 	case !st.converged:
 		msg := fmt.Sprintf("Newton-Raphson stopped after %d iterations: %s (max |score| %.3g)", st.iters, st.reason, r.MaxAbsScore)
@@ -1036,13 +1036,16 @@ func invertSym(A []float64, P int) ([]float64, error) {
 // only of a predictor. With the programme's direction of recession rec the
 // separation is proved, and the parameters are named by nameRecession:
 // those that diverge and those the log-likelihood does not depend on;
-// without it, those along the direction vec (scaled coordinates) in which
-// the signs were seen.
-func (src *source) describeSeparation(m Model, ly *layout, theta, vec []float64, rec *recession) *Separation {
+// without it, those with weight in the null space of the information info
+// at the end of the iterations (nameNullSpace), or, when it has none, those
+// along the direction vec (scaled coordinates) in which the signs were
+// seen.
+func (src *source) describeSeparation(m Model, ly *layout, theta, info, vec []float64, rec *recession) *Separation {
 	s := &Separation{Proved: rec != nil}
 	switch {
 	case rec != nil:
 		src.nameRecession(s, m, ly, theta, rec)
+	case s.nameNullSpace(ly, info, src.columnReach(), src.predictors, src.categories):
 	case vec != nil:
 		s.nameDirection(ly, vec, src.predictors, src.categories)
 	default:
@@ -1283,10 +1286,128 @@ func (s *Separation) nameDirection(ly *layout, vec []float64, predictors, catego
 	for _, v := range vec {
 		maxv = math.Max(maxv, math.Abs(v))
 	}
+	named := make([]bool, len(vec))
+	for i, v := range vec {
+		named[i] = math.Abs(v) >= 0.25*maxv
+	}
+	s.nameParameters(ly, named, predictors, categories)
+}
+
+// nullCurvature is the curvature, relative to the largest, at or below
+// which nameNullSpace counts a direction of the information as having
+// none (the floor of newtonStep's eigenvalue repair).
+const nullCurvature = 1e-8
+
+// columnReach is, for each predictor, the largest change of a linear
+// predictor per unit of its slope: the largest absolute value of the
+// predictor over the rows, as the programme scales its columns
+// (recessionRows); without the rows at hand (a fit summed over parts),
+// its standard deviation. Nil when neither is known; 1 for a predictor
+// that is zero throughout.
+func (src *source) columnReach() []float64 {
+	d := src.rows
+	if d == nil {
+		return src.sd
+	}
+	K := len(d.Predictors)
+	out := make([]float64, K)
+	for i := 0; i < d.N(); i++ {
+		for k := range out {
+			out[k] = math.Max(out[k], math.Abs(d.at(i, k)))
+		}
+	}
+	for k, v := range out {
+		if !(v > 0) {
+			out[k] = 1
+		}
+	}
+	return out
+}
+
+// nameNullSpace names the parameters of a separation not proved from the
+// information info (P x P) where the iterations ended: every parameter
+// carrying a quarter or more of some unit vector of its null space, the
+// directions whose curvature is at most nullCurvature of the largest (the
+// share of the parameter, the diagonal of the projection on that space,
+// at least 1/16, as nameRecession counts). The curvature is measured per
+// unit change of the linear predictors (a slope times reach, its
+// predictor's columnReach; a cutpoint or phi as it is), not on the
+// unit-diagonal scale, on which a lone diverging parameter, whose
+// curvature vanishes with its score, would look as well informed as any.
+// Among many directions of zero curvature (slopes no row reads, the
+// diverging ones, combinations of them) the null space as a whole is
+// named, whichever weakest direction an eigensolver returns, and a
+// direction spread over many parameters (a reference level's, moving
+// every other level's slope with the cutpoint) names none of them. A
+// parameter whose information is exactly zero, read by no row, is not
+// determined (NotDetermined); the others are named as Parameters. It
+// returns false, naming nothing, when the information has no such
+// direction or none but parameters read by no row.
+func (s *Separation) nameNullSpace(ly *layout, info, reach []float64, predictors, categories []string) bool {
+	P := len(ly.params)
+	if P == 0 || len(info) != P*P {
+		return false
+	}
+	sc := make([]float64, P)
+	for i, pa := range ly.params {
+		sc[i] = 1
+		switch pa.kind {
+		case pParallel, pFree, pGamma:
+			if pa.k < len(reach) && reach[pa.k] > 0 {
+				sc[i] = 1 / reach[pa.k]
+			}
+		}
+	}
+	var es mat.EigenSym
+	if !es.Factorize(scaledSym(info, P, sc), true) {
+		return false
+	}
+	vals := es.Values(nil)
+	maxv := 0.0
+	for _, v := range vals {
+		maxv = math.Max(maxv, math.Abs(v))
+	}
+	if !(maxv > 0) {
+		return false
+	}
+	var vecs mat.Dense
+	es.VectorsTo(&vecs)
+	share := make([]float64, P)
+	for j, v := range vals {
+		if math.Abs(v) > nullCurvature*maxv {
+			continue
+		}
+		for i := range share {
+			share[i] += vecs.At(i, j) * vecs.At(i, j)
+		}
+	}
+	s.byCurvature = true
+	named := make([]bool, P)
+	found := false
+	for i, v := range share {
+		switch {
+		case v < 1.0/16:
+		case info[i*P+i] == 0:
+			s.NotDetermined = append(s.NotDetermined, ly.params[i].name)
+		default:
+			named[i], found = true, true
+		}
+	}
+	if !found {
+		s.NotDetermined, s.byCurvature = nil, false
+		return false
+	}
+	s.nameParameters(ly, named, predictors, categories)
+	return true
+}
+
+// nameParameters lists the parameters named (by index), and the
+// predictors and category boundaries they belong to.
+func (s *Separation) nameParameters(ly *layout, named []bool, predictors, categories []string) {
 	preds := map[int]bool{}
 	bounds := map[int]bool{}
-	for i, v := range vec {
-		if math.Abs(v) < 0.25*maxv {
+	for i, ok := range named {
+		if !ok {
 			continue
 		}
 		p := ly.params[i]
@@ -1441,22 +1562,25 @@ func separationMessage(r *Result, st newtonState) string {
 		b.WriteString("no finite maximum likelihood estimate found: the log-likelihood does not fall far along a direction in which parameters grow, as under separation; that it keeps rising is not proved for this fit")
 	}
 	if s != nil && len(s.Predictors) > 0 {
-		fmt.Fprintf(&b, "; predictors involved: %s", strings.Join(s.Predictors, ", "))
+		fmt.Fprintf(&b, "; predictors involved: %s", cappedList(s.Predictors, ", ", ""))
 	}
 	if s != nil && len(s.Boundaries) > 0 {
-		fmt.Fprintf(&b, "; category boundaries: %s", strings.Join(s.Boundaries, ", "))
+		fmt.Fprintf(&b, "; category boundaries: %s", cappedList(s.Boundaries, ", ", ""))
 	}
 	if s != nil && len(s.Evidence) > 0 {
-		fmt.Fprintf(&b, "; %s", strings.Join(s.Evidence, "; "))
+		fmt.Fprintf(&b, "; %s", cappedList(s.Evidence, "; ", " such facts"))
 	}
 	if s != nil && len(s.Parameters) > 0 {
 		what := "along that direction"
-		if s.Proved {
+		switch {
+		case s.Proved:
 			what = "diverging"
+		case s.byCurvature:
+			what = "with no curvature where the iterations stopped"
 		}
-		fmt.Fprintf(&b, " (%s: %s", what, strings.Join(s.Parameters, ", "))
+		fmt.Fprintf(&b, " (%s: %s", what, cappedList(s.Parameters, ", ", ""))
 		if len(s.NotDetermined) > 0 {
-			fmt.Fprintf(&b, "; %s: %s", notDeterminedWords, strings.Join(s.NotDetermined, ", "))
+			fmt.Fprintf(&b, "; %s: %s", notDeterminedWords, cappedList(s.NotDetermined, ", ", ""))
 		}
 		b.WriteString(")")
 	}
@@ -1466,6 +1590,20 @@ func separationMessage(r *Result, st newtonState) string {
 	}
 	fmt.Fprintf(&b, " [log-likelihood %s %.6f; information condition %.2g]", reached, st.ll, r.Condition)
 	return b.String()
+}
+
+// messageListMost is how many names of one list a separation's message
+// gives; the rest are counted ("and 12 more"). The Separation keeps them
+// all.
+const messageListMost = 10
+
+// cappedList joins the first messageListMost of xs with sep, and says how
+// many more there are (what: the words after the count).
+func cappedList(xs []string, sep, what string) string {
+	if len(xs) <= messageListMost {
+		return strings.Join(xs, sep)
+	}
+	return strings.Join(xs[:messageListMost], sep) + fmt.Sprintf("%sand %d more%s", sep, len(xs)-messageListMost, what)
 }
 
 // notDeterminedWords introduces the parameters of Separation.NotDetermined

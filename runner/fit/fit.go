@@ -267,23 +267,29 @@ type Result struct {
 type Separation struct {
 	// Parameters: those that diverge when Proved (that some direction of
 	// recession, in which the log-likelihood rises to its supremum,
-	// moves); else those along the direction in which the signs were
+	// moves); else those with weight in the directions of no curvature of
+	// the information where the iterations stopped, read by some row, or,
+	// when it has none, those along the direction in which the signs were
 	// seen. A constrained predictor x alone in its group is named by its
 	// effects at the boundaries, "x" and "phi[m]*x" (nameRecession).
 	Parameters []string `json:"parameters"`
 	Predictors []string `json:"predictors"` // the predictors of Parameters, and of Evidence
 	Boundaries []string `json:"boundaries"` // "lower/upper" category boundaries of Parameters
 	Evidence   []string `json:"evidence"`   // data facts such as `category "1" occurs only at temp = 0`
-	// NotDetermined (Proved only) are the parameters along which the
-	// log-likelihood is constant: no row's probability reads them (or
-	// only a combination of them), so the data do not determine them.
-	// No name is in both lists.
+	// NotDetermined are the parameters along which the log-likelihood is
+	// constant: no row's probability reads them (or, when Proved, only a
+	// combination of them), so the data do not determine them. No name is
+	// in both lists.
 	NotDetermined []string `json:"not_determined,omitempty"`
 	// Proved: a direction of recession was found in the data (the
 	// log-likelihood keeps rising along it); false when only the signs
 	// were seen (a singular information, a ray along which the
 	// log-likelihood held) and nothing proves whether the maximum is finite.
 	Proved bool `json:"proved"`
+	// byCurvature: not Proved, the parameters were named from the null
+	// space of the information where the iterations stopped
+	// (nameNullSpace), not along one direction.
+	byCurvature bool
 }
 
 // Flatness describes a finite maximum that is nearly flat

@@ -261,5 +261,6 @@ func unprovenWords(msg string) string {
 	msg = strings.Replace(msg, "(diverging: ", "(", 1)
 	msg = strings.Replace(msg, "[log-likelihood approaches ", "[log-likelihood ", 1)
 	msg = strings.Replace(msg, "[log-likelihood reached ", "[log-likelihood ", 1)
+	msg = strings.Replace(msg, "(with no curvature where the iterations stopped: ", "(", 1)
 	return strings.Replace(msg, "(along that direction: ", "(", 1)
 }

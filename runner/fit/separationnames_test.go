@@ -1,9 +1,13 @@
 package fit
 
 import (
+	"fmt"
+	"math/rand/v2"
 	"slices"
 	"strings"
 	"testing"
+
+	"ordplan/internal/testsurvey"
 )
 
 // oneRowLevel is an invented study of 4 categories: 48 rows whose
@@ -143,5 +147,90 @@ func TestSeparationNamesEveryDirection(t *testing.T) {
 			[]string{"h", "phi[2]*h", "phi[3]*h"}, nil},
 	} {
 		checkSeparationNames(t, c.name, c.d, c.m, c.diverging, c.flat)
+	}
+}
+
+// A separation the programme does not prove (kept from running, as on a
+// fit too large for it) names its parameters from the null space of the
+// information where the iterations stopped: on the nonparallel cumulative
+// fit of testsurvey.LevelSeparated (300 rows, 30 levels, seed 21), every
+// level of g other than the reference whose rows lack some category (in
+// this model, whose unobserved categories may take negative
+// probabilities, such a level's slopes diverge), counted here from the
+// data, and no other; the same parameters as the proved separation's
+// (the programme running), the same message on a second fit, and the
+// same names when the iterations repair the information by its
+// eigenvalues alone (the path they took before semidefiniteStep). Every
+// tenth level has all its rows in category 4; the reference level L000 is
+// one of them, its separation a direction spread over the third cutpoint
+// and every other level's third slope, which names none of them.
+func TestUnprovedSeparationNamesLevels(t *testing.T) {
+	const n, L = 300, 30
+	s := testsurvey.NewLevelSeparated(rand.New(rand.NewPCG(21, 21)), n, L)
+	seen := make([][5]bool, L)
+	for i, g := range s.G {
+		seen[g][s.Y[i]] = true
+	}
+	var want []string
+	allFour := 0
+	for g := 1; g < L; g++ {
+		if !(seen[g][1] && seen[g][2] && seen[g][3] && seen[g][4]) {
+			want = append(want, "g."+s.Level(g))
+		}
+		if g%10 == 0 {
+			allFour++
+		}
+	}
+	if len(want) <= allFour {
+		t.Fatalf("levels lacking a category %v: the data do not have levels other than those all in category 4", want)
+	}
+	d := levelSeparatedData(21, n, L)
+	m := nonparallelModel(d)
+	proved, err := Fit(d, m, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	programmeOff = true
+	defer func() { programmeOff = false }()
+	var msgs []string
+	for i := range 3 {
+		eigenRepairOnly = i == 2
+		r, err := Fit(d, m, Options{})
+		eigenRepairOnly = false
+		if err != nil {
+			t.Fatal(err)
+		}
+		sep := r.Separation
+		if r.Status != StatusNoFiniteMaximum || sep == nil || sep.Proved {
+			t.Fatalf("status %s (%s), want a separation not proved", r.Status, r.Message)
+		}
+		if !slices.Equal(sep.Predictors, want) {
+			t.Errorf("predictors %v, want the levels lacking a category %v", sep.Predictors, want)
+		}
+		if ps := proved.Separation; ps == nil || !ps.Proved || !slices.Equal(sep.Parameters, ps.Parameters) || !slices.Equal(sep.NotDetermined, ps.NotDetermined) {
+			t.Errorf("parameters %v, not determined %v; proved separation %+v", sep.Parameters, sep.NotDetermined, ps)
+		}
+		if !strings.Contains(r.Message, "(with no curvature where the iterations stopped: "+strings.Join(sep.Parameters, ", ")+"; "+notDeterminedWords) {
+			t.Errorf("message %q does not list the parameters %v", r.Message, sep.Parameters)
+		}
+		msgs = append(msgs, r.Message)
+	}
+	if msgs[0] != msgs[1] || !strings.HasSuffix(msgs[2][:strings.LastIndex(msgs[2], " [")], msgs[0][strings.Index(msgs[0], "; predictors involved"):strings.LastIndex(msgs[0], " [")]) {
+		t.Errorf("three fits (the last with the eigenvalue repair alone), messages:\n%s\n%s\n%s", msgs[0], msgs[1], msgs[2])
+	}
+	t.Log(msgs[0])
+}
+
+// A separation's message gives at most messageListMost names of a list,
+// then counts the rest.
+func TestSeparationMessageCapsLists(t *testing.T) {
+	var names []string
+	for i := range 13 {
+		names = append(names, fmt.Sprintf("g.L%03d", i))
+	}
+	r := &Result{Separation: &Separation{Predictors: names, Parameters: names[:3]}}
+	msg := separationMessage(r, newtonState{})
+	if want := "predictors involved: " + strings.Join(names[:10], ", ") + ", and 3 more (along that direction: g.L000, g.L001, g.L002)"; !strings.Contains(msg, want) {
+		t.Errorf("message %q, want it to say %q", msg, want)
 	}
 }
