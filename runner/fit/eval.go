@@ -138,9 +138,20 @@ type problem struct {
 	prof   *profile  // optional timing of the cross-products
 	// first: the sums of an evaluation at one point, made otherwise
 	// (firstSums); last: the last evaluation to second order (lastSums).
-	first   *firstSums
-	lastMu  sync.Mutex
-	last    *lastSums
+	first  *firstSums
+	lastMu sync.Mutex
+	last   *lastSums
+	pools  *pools
+}
+
+// pools are what a problem's evaluations reuse, allocated apart from the
+// problem and holding nothing of its design (putScratch): the runtime
+// keeps a pool used since the last collection until the next one, which,
+// were the pools fields of the problem, would keep the problem, its
+// design and the design's copy of X alive one collection longer than the
+// fit (the term tests' refits, each on a copy of X without the term's
+// columns, then held two or three copies at once).
+type pools struct {
 	scratch sync.Pool // *scratch, reused across evaluations
 	// parts: the sums of one block (*acc) by order, reused across
 	// evaluations (blockAcc), so that a pass leaves one acc behind, not
@@ -148,9 +159,27 @@ type problem struct {
 	parts [3]sync.Pool
 }
 
+// getScratch is a block's scratch: one an earlier block gave back, or a
+// new one.
+func (p *problem) getScratch() *scratch {
+	if s, _ := p.pools.scratch.Get().(*scratch); s != nil {
+		return s
+	}
+	return p.newScratch()
+}
+
+// putScratch gives s back for the next block, first dropping what it
+// reads of the design in place (the parallel columns, the sources of a
+// combination), which every block sets again before reading.
+func (p *problem) putScratch(s *scratch) {
+	s.xpv = s.xp
+	clear(s.src[:cap(s.src)])
+	p.pools.scratch.Put(s)
+}
+
 func newProblem(d *design, m Model, ly *layout, workers int) *problem {
 	q := ly.J - 1
-	p := &problem{d: d, model: m, ly: ly, q: q, workers: workers,
+	p := &problem{d: d, model: m, ly: ly, q: q, workers: workers, pools: &pools{},
 		ker: kernel{cmp: m.Comparison, backward: m.Backward, link: m.Link, nEq: q}}
 	p.freeCols = []column{{kind: constantColumn}}
 	p.freeOf = make([]int, d.K)
@@ -226,7 +255,7 @@ func (p *problem) newAcc(order int) *acc {
 // makes it: one that an earlier evaluation gave back (p.parts), cleared,
 // or a new one.
 func (p *problem) blockAcc(order int) *acc {
-	a, _ := p.parts[order].Get().(*acc)
+	a, _ := p.pools.parts[order].Get().(*acc)
 	if a == nil {
 		return p.newAcc(order)
 	}
@@ -319,19 +348,16 @@ func (p *problem) evaluate(theta []float64, order int, expected bool) *acc {
 	}
 	parts := make([]*acc, nb)
 	p.eachBlock(func(b, lo, hi int) {
-		s, _ := p.scratch.Get().(*scratch)
-		if s == nil {
-			s = p.newScratch()
-		}
+		s := p.getScratch()
 		a := p.blockAcc(order)
 		p.block(c, lo, hi, order, expected, a, s)
 		parts[b] = a
-		p.scratch.Put(s)
+		p.putScratch(s)
 	})
 	total := parts[0]
 	for _, a := range parts[1:] {
 		total.add(a)
-		p.parts[order].Put(a)
+		p.pools.parts[order].Put(a)
 	}
 	if order >= 2 {
 		for _, S := range total.S {

@@ -455,11 +455,8 @@ func (p *problem) fittedRows(theta []float64, withMin bool) (float64, int) {
 	mins := make([]float64, nb)
 	negs := make([]int, nb)
 	p.eachBlock(func(b, lo, hi int) {
-		s, _ := p.scratch.Get().(*scratch)
-		if s == nil {
-			s = p.newScratch()
-		}
-		defer p.scratch.Put(s)
+		s := p.getScratch()
+		defer p.putScratch(s)
 		rows := hi - lo
 		p.blockColumns(c, lo, rows, s)
 		p.blockLinear(c, lo, rows, false, s)

@@ -120,14 +120,11 @@ func (p *problem) extendSums(theta []float64, expected bool, b *acc) *acc {
 	nb := (p.d.n + blockRows - 1) / blockRows
 	parts := make([]*acc, nb)
 	p.eachBlock(func(bi, lo, hi int) {
-		s, _ := p.scratch.Get().(*scratch)
-		if s == nil {
-			s = p.newScratch()
-		}
+		s := p.getScratch()
 		pa := p.blockAcc(2)
 		p.indicatorBlock(c, lo, hi, expected, pa, s)
 		parts[bi] = pa
-		p.scratch.Put(s)
+		p.putScratch(s)
 	})
 	// The first block's sums, then each later block's added (as acc.add).
 	for g := kp0; g < kp; g++ {
@@ -146,7 +143,7 @@ func (p *problem) extendSums(theta []float64, expected bool, b *acc) *acc {
 		}
 	}
 	for _, pa := range parts {
-		p.parts[2].Put(pa)
+		p.pools.parts[2].Put(pa)
 	}
 	mirrorLower(a.T, kp)
 	return a
