@@ -385,19 +385,33 @@ func sourceEffects(or *OutcomeResult, res *fit.Result, raw []float64, n int, off
 					}
 				}
 			}
-			X0, err := atValue(dz, raw, n, s, from)
-			if err != nil {
-				return nil, nil, err
+			// The rows at from and at each value to are made one at a time
+			// in the effect, not held whole (each n x K); on an error, each
+			// value's rows are checked in row order, from's first, so the
+			// error is the first row's that fails, as when they were held.
+			if len(tos) == 0 {
+				if err := allRowsAt(dz, raw, n, s, from); err != nil {
+					return nil, nil, err
+				}
 			}
+			r := make([]float64, S)
 			for t, to := range tos {
-				X1, err := atValue(dz, raw, n, s, to)
+				at := [2]float64{from, to}
+				effs, err := res.AverageDifferences(src.Name, 2, n, func(v, i int, x []float64) error {
+					return rowAt(dz, raw, i, s, at[v], r, x)
+				}, [][2]int{{0, 1}}, off, w, level)
 				if err != nil {
+					if t == 0 {
+						if e := allRowsAt(dz, raw, n, s, from); e != nil {
+							return nil, nil, e
+						}
+					}
+					if e := allRowsAt(dz, raw, n, s, to); e != nil {
+						return nil, nil, e
+					}
 					return nil, nil, err
 				}
-				eff, err := res.AverageDifference(src.Name, X0, X1, off, w, level)
-				if err != nil {
-					return nil, nil, err
-				}
+				eff := effs[0]
 				for i := range eff {
 					eff[i].Change = labels[t]
 				}
@@ -405,25 +419,58 @@ func sourceEffects(or *OutcomeResult, res *fit.Result, raw []float64, n int, off
 			}
 			continue
 		}
-		X := make([]float64, n*K)
-		dX := make([]float64, n*K)
-		infinite := 0
-		for i := 0; i < n; i++ {
-			if err := dz.Derivative(raw[i*S:(i+1)*S], s, X[i*K:(i+1)*K], dX[i*K:(i+1)*K]); err != nil {
-				return nil, nil, err
-			}
-			for _, v := range dX[i*K : (i+1)*K] {
-				if math.IsInf(v, 0) || math.IsNaN(v) {
-					infinite++
-					break
+		// The derivative is made row by row in the effect, neither the rows
+		// nor their derivatives held whole (each n x K); the rows of weight
+		// 0, which the effect does not read, after it. On an error every
+		// row is checked in order (checkDerivatives), so the error, or the
+		// rows where the derivative is infinite, are as when they were
+		// held; those rows give a note instead of the effect.
+		x, dx := make([]float64, K), make([]float64, K)
+		derivative := func(i int) error {
+			clear(x)
+			clear(dx)
+			return dz.Derivative(raw[i*S:(i+1)*S], s, x, dx)
+		}
+		notFinite := func() bool {
+			return slices.ContainsFunc(dx, func(v float64) bool { return math.IsInf(v, 0) || math.IsNaN(v) })
+		}
+		checkDerivatives := func() (infinite int, err error) {
+			for i := 0; i < n; i++ {
+				if err := derivative(i); err != nil {
+					return 0, err
 				}
+				if notFinite() {
+					infinite++
+				}
+			}
+			return infinite, nil
+		}
+		infinite := 0
+		var rowErr error
+		eff, err := res.AverageSlopeRows(src.Name, n, func(i int) ([]float64, []float64) {
+			if rowErr == nil {
+				if rowErr = derivative(i); rowErr == nil && notFinite() {
+					infinite++
+				}
+			}
+			return x, dx
+		}, off, w, level)
+		for i := 0; i < n && w != nil && err == nil && rowErr == nil; i++ {
+			if w[i] == 0 {
+				if rowErr = derivative(i); rowErr == nil && notFinite() {
+					infinite++
+				}
+			}
+		}
+		if err != nil || rowErr != nil {
+			if infinite, rowErr = checkDerivatives(); rowErr != nil {
+				return nil, nil, rowErr
 			}
 		}
 		if infinite > 0 {
 			notes = append(notes, fmt.Sprintf("The effect of %s is not computed: its derivative is infinite at %d of the %d rows (a square root at 0); a log with a shift, or a change between stated values, gives a finite effect.", src.Name, infinite, n))
 			continue
 		}
-		eff, err := res.AverageSlope(src.Name, X, dX, off, w, level)
 		if err != nil {
 			return nil, nil, err
 		}

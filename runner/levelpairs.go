@@ -281,20 +281,26 @@ func pairOddsRatios(or *OutcomeResult, res *fit.Result, s int, levels []string, 
 	return out, ""
 }
 
-// atValue is the design of the n raw rows (n x S) with raw column s set to
-// v in every row.
-func atValue(dz *design.Design, raw []float64, n, s int, v float64) ([]float64, error) {
-	S, K := len(dz.Sources), len(dz.Columns)
-	X := make([]float64, n*K)
-	r := make([]float64, S)
+// allRowsAt checks that each of the n raw rows (n x S) with raw column s
+// set to v has a design row (rowAt), in row order: the first error.
+func allRowsAt(dz *design.Design, raw []float64, n, s int, v float64) error {
+	r, x := make([]float64, len(dz.Sources)), make([]float64, len(dz.Columns))
 	for i := 0; i < n; i++ {
-		copy(r, raw[i*S:(i+1)*S])
-		r[s] = v
-		if err := dz.Row(r, X[i*K:(i+1)*K]); err != nil {
-			return nil, err
+		if err := rowAt(dz, raw, i, s, v, r, x); err != nil {
+			return err
 		}
 	}
-	return X, nil
+	return nil
+}
+
+// rowAt fills x with the design row of raw row i (of raw, n x S) with
+// raw column s set to v, using r (S values) for the raw row.
+func rowAt(dz *design.Design, raw []float64, i, s int, v float64, r, x []float64) error {
+	S := len(dz.Sources)
+	copy(r, raw[i*S:(i+1)*S])
+	r[s] = v
+	clear(x)
+	return dz.Row(r, x)
 }
 
 // PairsProfileWarnings are the warnings check and run print when the plan

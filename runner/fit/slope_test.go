@@ -90,9 +90,9 @@ func TestSlopeJacobianFiniteDifferences(t *testing.T) {
 					if pr.evaluate(th, 0, false).bad {
 						t.Skip("test point invalid")
 					}
-					_, jac := pr.averageSlope(th, d.X, dX, d.Offset, d.Weights, true)
+					_, jac := pr.averageSlope(th, d.N(), rowsOf2(d.X, dX, len(d.Predictors)), d.Offset, d.Weights, true)
 					fd := richardsonJacobian(func(x []float64) []float64 {
-						e, _ := pr.averageSlope(x, d.X, dX, d.Offset, d.Weights, false)
+						e, _ := pr.averageSlope(x, d.N(), rowsOf2(d.X, dX, len(d.Predictors)), d.Offset, d.Weights, false)
 						return e
 					}, th)
 					P := len(th)

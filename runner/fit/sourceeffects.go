@@ -108,12 +108,35 @@ func (r *Result) AverageSlope(name string, X, dX, offset, w []float64, level flo
 	if len(X) != len(dX) || K > 0 && len(X)%K != 0 {
 		return nil, fmt.Errorf("design rows of different sizes")
 	}
-	eff, jac := pr.averageSlope(r.Estimates, X, dX, offset, w, true)
+	n := 1
+	if K > 0 {
+		n = len(X) / K
+	}
+	eff, jac := pr.averageSlope(r.Estimates, n, rowsOf2(X, dX, K), offset, w, true)
 	return r.effectRows(name, false, eff, jac, level), nil
 }
 
-// averageSlope returns the weighted average over the rows of X (n x K) of
-// the derivative of the category probabilities along dX at theta,
+// AverageSlopeRows is AverageSlope on n rows given one at a time, so that
+// neither X nor dX is held whole: row(i) returns the design row i and the
+// derivative of its columns (each K values, read before the next call).
+// The same values as AverageSlope on those rows, to the last bit.
+func (r *Result) AverageSlopeRows(name string, n int, row func(i int) (x, dx []float64), offset, w []float64, level float64) ([]MarginalEffect, error) {
+	pr, err := r.problem()
+	if err != nil {
+		return nil, err
+	}
+	eff, jac := pr.averageSlope(r.Estimates, n, row, offset, w, true)
+	return r.effectRows(name, false, eff, jac, level), nil
+}
+
+// rowsOf2 gives row i of X and of dX (n x K each).
+func rowsOf2(X, dX []float64, K int) func(i int) (x, dx []float64) {
+	return func(i int) (x, dx []float64) { return X[i*K : (i+1)*K], dX[i*K : (i+1)*K] }
+}
+
+// averageSlope returns the weighted average over the n rows (row(i): the
+// design row x and its direction dx, K values each) of the derivative of
+// the category probabilities along dx at theta,
 //
 //	e_j = sum_m dP_j/dL_m (L) s_m,  s_m = dL_m along dx = -sum_k b_mk dx_k,
 //
@@ -125,13 +148,9 @@ func (r *Result) AverageSlope(name string, X, dX, offset, w []float64, level flo
 // affine in x; for a constrained predictor b_mk = phi_m g_k, both factors
 // parameters). It holds to rounding whatever the scale of a column, where
 // differences in theta would need steps matched to each column.
-func (pr *problem) averageSlope(theta, X, dX, offset, w []float64, jacobian bool) (eff, jac []float64) {
+func (pr *problem) averageSlope(theta []float64, n int, row func(i int) (x, dx []float64), offset, w []float64, jacobian bool) (eff, jac []float64) {
 	K, q, P := pr.ly.K, pr.q, len(theta)
 	J := q + 1
-	n := 1
-	if K > 0 {
-		n = len(X) / K
-	}
 	c := pr.coefs(theta)
 	dv := pr.derivs(theta)
 	B := pr.ly.effects(theta, pr.model.Effects)
@@ -143,7 +162,7 @@ func (pr *problem) averageSlope(theta, X, dX, offset, w []float64, jacobian bool
 		T, dLt, dS, v = make([]float64, J*q*q), make([]float64, q*P), make([]float64, q*P), make([]float64, q)
 	}
 	tot := eachWeightedRow(n, w, offset, func(i int, wi, off float64) {
-		x, dx := X[i*K:(i+1)*K], dX[i*K:(i+1)*K]
+		x, dx := row(i)
 		pr.linearRow(c, x, off, L)
 		pr.ker.dprobsDL(L, D, T)
 		for m := 0; m < q; m++ {
