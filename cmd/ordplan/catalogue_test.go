@@ -25,6 +25,7 @@ import (
 	"strings"
 	"testing"
 
+	"ordplan/internal/testbook"
 	"ordplan/internal/zipparts"
 	"ordplan/runner/data"
 
@@ -463,23 +464,7 @@ func totalsWorkbook(t *testing.T) []byte {
 // bookOf is a workbook whose sheet Sheet1 holds rows from A1, numbers as
 // numbers, changed by more (if not nil) before it is written.
 func bookOf(t *testing.T, rows [][]any, more func(*excelize.File)) []byte {
-	t.Helper()
-	f := excelize.NewFile()
-	defer f.Close()
-	for i, row := range rows {
-		cell, _ := excelize.CoordinatesToCellName(1, i+1)
-		if err := f.SetSheetRow("Sheet1", cell, &row); err != nil {
-			t.Fatal(err)
-		}
-	}
-	if more != nil {
-		more(f)
-	}
-	var b bytes.Buffer
-	if err := f.Write(&b); err != nil {
-		t.Fatal(err)
-	}
-	return b.Bytes()
+	return testbook.Rows(t, "", 1, rows, more)
 }
 
 // typedTotalsWorkbook is totalsWorkbook's table with its row of totals

@@ -1,13 +1,14 @@
 package data
 
 import (
-	"bytes"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 
 	"github.com/xuri/excelize/v2"
+
+	"ordplan/internal/testbook"
 )
 
 // totalsBook is a workbook whose sheet "s" holds y, a, b, c, d in rows 1
@@ -16,27 +17,14 @@ import (
 // as =SUM(C2:C7)), D8 =AVERAGE(B2:B7) (another column's), each with its
 // value saved.
 func totalsBook(t testing.TB) []byte {
-	t.Helper()
-	f := excelize.NewFile()
-	defer f.Close()
-	f.SetSheetName("Sheet1", "s")
 	rows := [][]any{{"y", "a", "b", "c", "d"}, {1, 0.5, 1.0, 2, 1}, {2, 3.0, 2.0, 1, 2}, {1, 7.0, 3.0, 4, 3}, {2, 1.5, 4.0, 1, 4}, {1, -1.0, 0.0, 2, 5}, {2, 2.0, 1.0, 3, 6}, {nil, 13.0, 11.0, 13, 2.1667}}
-	for i, r := range rows {
-		cell, _ := excelize.CoordinatesToCellName(1, i+1)
-		if err := f.SetSheetRow("s", cell, &r); err != nil {
+	return testbook.Rows(t, "s", 1, rows, func(f *excelize.File) {
+		shared, ref := excelize.STCellFormulaTypeShared, "B8:C8"
+		if err := f.SetCellFormula("s", "B8", "SUM(B2:B7)", excelize.FormulaOpts{Type: &shared, Ref: &ref}); err != nil {
 			t.Fatal(err)
 		}
-	}
-	shared, ref := excelize.STCellFormulaTypeShared, "B8:C8"
-	if err := f.SetCellFormula("s", "B8", "SUM(B2:B7)", excelize.FormulaOpts{Type: &shared, Ref: &ref}); err != nil {
-		t.Fatal(err)
-	}
-	f.SetCellFormula("s", "D8", "AVERAGE(B2:B7)")
-	var b bytes.Buffer
-	if err := f.Write(&b); err != nil {
-		t.Fatal(err)
-	}
-	return b.Bytes()
+		f.SetCellFormula("s", "D8", "AVERAGE(B2:B7)")
+	})
 }
 
 // A row of totals is refused when a used column's cell aggregates the
@@ -92,24 +80,7 @@ func TestAggregateOver(t *testing.T) {
 // bookRows is a workbook whose sheet "s" holds rows from A1, changed by
 // more before it is written.
 func bookRows(t *testing.T, rows [][]any, more func(f *excelize.File)) []byte {
-	t.Helper()
-	f := excelize.NewFile()
-	defer f.Close()
-	f.SetSheetName("Sheet1", "s")
-	for i, r := range rows {
-		cell, _ := excelize.CoordinatesToCellName(1, i+1)
-		if err := f.SetSheetRow("s", cell, &r); err != nil {
-			t.Fatal(err)
-		}
-	}
-	if more != nil {
-		more(f)
-	}
-	var b bytes.Buffer
-	if err := f.Write(&b); err != nil {
-		t.Fatal(err)
-	}
-	return b.Bytes()
+	return testbook.Rows(t, "s", 1, rows, more)
 }
 
 // A row of totals written through a defined name or a table's column
